@@ -1,0 +1,185 @@
+"""Processing settings: :class:`Config`, a frozen dataclass of every method setting.
+
+Each field defaults to the published setting of its method, or to a documented
+choice of ours where the paper leaves it open. A site config's ``[processing]``
+table overrides fields by name; unknown names are an error that suggests the
+nearest valid one.
+"""
+
+from __future__ import annotations
+
+import difflib
+import tomllib
+from dataclasses import asdict, dataclass, fields
+from pathlib import Path
+
+from .errors import ConfigError, InputFileError
+
+__all__ = ["Config", "suggest_key"]
+
+
+@dataclass(frozen=True)
+class Config:
+    """Every setting of the fluxpart pipeline.
+
+    Attributes
+    ----------
+    seed : int
+        Seed of every random draw (bootstrap, Monte Carlo); part of the result's
+        identity.
+    night_rg_threshold : float
+        Records with global radiation below this are night [W m-2]. 10 W m-2 is
+        common practice (m) (Reichstein et al. 2005 use 10 W m-2 (m)); where Rg is
+        missing, night is where potential radiation is zero.
+    ustar_threshold : float
+        Friction-velocity threshold [m s-1]: night records with u* below it are
+        rejected before gap filling. Default 0.2 m s-1 is our fixed choice, a value
+        typical of the thresholds reported for forests and grasslands (m), until the
+        threshold is detected from the data.
+    rg_tolerance : float
+        Marginal distribution sampling: similar global radiation within ± this
+        [W m-2]; Reichstein et al. (2005), appendix: 50 W m-2.
+    tair_tolerance : float
+        Similar air temperature within ± this [°C]; Reichstein et al. (2005): 2.5 °C.
+    vpd_tolerance : float
+        Similar vapour pressure deficit within ± this [hPa]; Reichstein et al. (2005): 5 hPa.
+    respiration_driver : str
+        Temperature that drives Lloyd–Taylor respiration: ``"tair"`` or ``"tsoil"``.
+    e0_window_days : float
+        Length of the short windows in which E0 is fitted [days]; 15 days,
+        Reichstein et al. (2005) (m).
+    e0_window_step_days : float
+        Step between E0 windows [days]; 5 days (m).
+    e0_min_points : int
+        Fewest measured night records in an E0 window for a fit; 6 (m).
+    e0_min_temperature_range : float
+        Smallest temperature range in an E0 window [K]; 5 K, Reichstein et al. (2005).
+    e0_bounds : tuple of float
+        Accepted E0 range [K]; 30–450 K, Reichstein et al. (2005) (m).
+    e0_max_relative_error : float
+        Largest accepted standard error of E0 relative to E0 [1]; 0.5, our choice.
+    e0_best_windows : int
+        How many accepted windows with the smallest standard error are averaged
+        into the year's E0; 3, Reichstein et al. (2005) (m).
+    e0_fallback : float or None
+        E0 to use, flagged, when no window is acceptable [K]. ``None`` (default)
+        makes such a year fail with an :class:`~fluxpart.errors.InsufficientDataError`.
+    rref_window_days : float
+        Window for the reference respiration with E0 fixed [days]; 4 days,
+        Reichstein et al. (2005).
+    rref_min_points : int
+        Fewest measured night records in an Rref window; 2 (m).
+    """
+
+    seed: int = 0
+    night_rg_threshold: float = 10.0
+    ustar_threshold: float = 0.2
+    rg_tolerance: float = 50.0
+    tair_tolerance: float = 2.5
+    vpd_tolerance: float = 5.0
+    respiration_driver: str = "tair"
+    e0_window_days: float = 15.0
+    e0_window_step_days: float = 5.0
+    e0_min_points: int = 6
+    e0_min_temperature_range: float = 5.0
+    e0_bounds: tuple[float, float] = (30.0, 450.0)
+    e0_max_relative_error: float = 0.5
+    e0_best_windows: int = 3
+    e0_fallback: float | None = None
+    rref_window_days: float = 4.0
+    rref_min_points: int = 2
+
+    def __post_init__(self):
+        _check(self)
+
+    @classmethod
+    def field_names(cls) -> tuple[str, ...]:
+        """Return the names of all settings."""
+        return tuple(f.name for f in fields(cls))
+
+    @classmethod
+    def from_mapping(cls, mapping: dict, where: str = "[processing]") -> Config:
+        """Build a Config from a mapping of overrides, rejecting unknown keys.
+
+        Raises
+        ------
+        ConfigError
+            For an unknown key (with the nearest valid key suggested) or a bad value.
+        """
+        names = cls.field_names()
+        for key in mapping:
+            if key not in names:
+                raise ConfigError(f"{where} {key}: unknown setting{suggest_key(key, names)}")
+        values = dict(mapping)
+        if "e0_bounds" in values and isinstance(values["e0_bounds"], list):
+            values["e0_bounds"] = tuple(values["e0_bounds"])
+        return cls(**values)
+
+    @classmethod
+    def from_toml(cls, path) -> Config:
+        """Read the ``[processing]`` table of a site config; defaults where absent."""
+        path = Path(path)
+        try:
+            document = tomllib.loads(path.read_text(encoding="utf-8"))
+        except FileNotFoundError:
+            raise InputFileError(f"site config {str(path)!r} does not exist") from None
+        except tomllib.TOMLDecodeError as error:
+            raise ConfigError(f"site config {str(path)!r} is not valid TOML: {error}") from None
+        processing = document.get("processing", {})
+        if not isinstance(processing, dict):
+            raise ConfigError("[processing] must be a table of settings")
+        return cls.from_mapping(processing)
+
+    def to_dict(self) -> dict:
+        """Return all settings as plain JSON-compatible values."""
+        out = asdict(self)
+        out["e0_bounds"] = list(self.e0_bounds)
+        return out
+
+
+def suggest_key(key: str, valid) -> str:
+    """Return a ``"; did you mean 'x'?"`` hint for the nearest valid key, or a list."""
+    close = difflib.get_close_matches(key, list(valid), n=1, cutoff=0.5)
+    if close:
+        return f"; did you mean {close[0]!r}?"
+    return f"; valid settings: {', '.join(sorted(valid))}"
+
+
+_CHOICES = {"respiration_driver": ("tair", "tsoil")}
+_POSITIVE = ("night_rg_threshold", "rg_tolerance", "tair_tolerance", "vpd_tolerance",
+             "e0_window_days", "e0_window_step_days", "e0_min_temperature_range",
+             "e0_max_relative_error", "rref_window_days")
+_NON_NEGATIVE = ("ustar_threshold",)
+_COUNTS = ("e0_min_points", "e0_best_windows", "rref_min_points")
+
+
+def _is_number(value) -> bool:
+    return isinstance(value, (int, float)) and not isinstance(value, bool)
+
+
+def _check(config: Config) -> None:
+    if not isinstance(config.seed, int) or isinstance(config.seed, bool) or config.seed < 0:
+        raise ConfigError(f"[processing] seed = {config.seed!r}: expected a non-negative integer")
+    for name, choices in _CHOICES.items():
+        value = getattr(config, name)
+        if value not in choices:
+            raise ConfigError(f"[processing] {name} = {value!r}: expected one of "
+                              f"{', '.join(repr(c) for c in choices)}")
+    for name in _POSITIVE + _NON_NEGATIVE:
+        value = getattr(config, name)
+        if not _is_number(value) or value < 0 or (name in _POSITIVE and value == 0):
+            kind = "a positive number" if name in _POSITIVE else "a number >= 0"
+            raise ConfigError(f"[processing] {name} = {value!r}: expected {kind}")
+    for name in _COUNTS:
+        value = getattr(config, name)
+        if not isinstance(value, int) or isinstance(value, bool) or value < 1:
+            raise ConfigError(f"[processing] {name} = {value!r}: expected a whole number >= 1")
+    low_high = config.e0_bounds
+    if (not isinstance(low_high, tuple) or len(low_high) != 2
+            or not all(_is_number(v) for v in low_high) or not 0 < low_high[0] < low_high[1]):
+        raise ConfigError(f"[processing] e0_bounds = {low_high!r}: expected [low, high] in K "
+                          "with 0 < low < high")
+    if config.e0_fallback is not None and (not _is_number(config.e0_fallback)
+                                           or config.e0_fallback <= 0):
+        raise ConfigError(f"[processing] e0_fallback = {config.e0_fallback!r}: expected a "
+                          "positive number of kelvin, or leave it out")

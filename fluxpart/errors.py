@@ -1,0 +1,64 @@
+"""Error classes of fluxpart.
+
+Every error a user can cause by bad input or a bad setting is a subclass of
+:class:`FluxpartError`, itself a :class:`ValueError`, and its message names the
+setting, column or row at fault, what was expected, what was found and a fix.
+"""
+
+__all__ = [
+    "ConfigError",
+    "DuplicateTimestampError",
+    "FluxpartError",
+    "ImplausibleValueError",
+    "InputFileError",
+    "InsufficientDataError",
+    "MissingColumnError",
+    "NonMonotonicTimestampError",
+    "SpacingError",
+    "TimestampError",
+    "UnitError",
+]
+
+
+class FluxpartError(ValueError):
+    """Base class of every error fluxpart raises for bad input or settings."""
+
+
+class ConfigError(FluxpartError):
+    """A setting in the site config or in :class:`fluxpart.Config` is invalid or unknown."""
+
+
+class InputFileError(FluxpartError):
+    """The input file is missing, unreadable or not what the config says."""
+
+
+class MissingColumnError(FluxpartError):
+    """A required column is absent from the input."""
+
+
+class TimestampError(FluxpartError):
+    """Timestamps cannot be parsed with the configured format."""
+
+
+class DuplicateTimestampError(FluxpartError):
+    """The same timestamp occurs more than once."""
+
+
+class NonMonotonicTimestampError(FluxpartError):
+    """Timestamps go backwards."""
+
+
+class SpacingError(FluxpartError):
+    """The record spacing is neither 30 nor 60 minutes, or irregular."""
+
+
+class UnitError(FluxpartError):
+    """A declared unit is unknown for its variable."""
+
+
+class ImplausibleValueError(FluxpartError):
+    """Values lie far outside the physically plausible range (often a unit mix-up)."""
+
+
+class InsufficientDataError(FluxpartError):
+    """Too few usable records for a method to give a defensible estimate."""

@@ -1,0 +1,1 @@
+"""Partitioning of NEE into gross primary production and ecosystem respiration."""

@@ -1,0 +1,194 @@
+"""Canonical variables: names, units, meaning and physically plausible ranges.
+
+Every DataFrame column that enters fluxpart uses one of the names in
+:data:`VARIABLES`, in the unit given there. Input files in other units are
+converted by :func:`to_canonical`; vapour pressure deficit may be derived from
+relative humidity and air temperature by :func:`vpd_from_rh`.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .constants import CO2_MOLAR_MASS, KELVIN_OFFSET
+from .errors import UnitError
+
+__all__ = [
+    "REQUIRED",
+    "VARIABLES",
+    "Variable",
+    "saturation_vapour_pressure",
+    "to_canonical",
+    "units_for",
+    "vpd_from_rh",
+]
+
+
+@dataclass(frozen=True)
+class Variable:
+    """One canonical input variable.
+
+    Attributes
+    ----------
+    name : str
+        Canonical column name.
+    unit : str
+        Canonical unit.
+    description : str
+        Meaning, with sign convention where one applies.
+    minimum, maximum : float
+        Physically plausible range in the canonical unit. Values outside it are
+        rejected by screening; values far outside it for much of a file point to a
+        unit mix-up and stop the reader.
+    required : bool
+        Whether a site file must provide it (``vpd`` may instead be derived from
+        ``rh`` and ``tair``).
+    """
+
+    name: str
+    unit: str
+    description: str
+    minimum: float
+    maximum: float
+    required: bool
+
+
+# Plausible ranges: our own choices, set wide enough for any ecosystem on Earth
+# and narrow enough to catch unit mix-ups. NEE: the largest half-hourly uptake
+# reported for crops is about -70 µmol m-2 s-1 (common practice), so ±100.
+VARIABLES: dict[str, Variable] = {
+    v.name: v
+    for v in (
+        Variable("nee", "µmol m-2 s-1",
+                 "net ecosystem exchange of CO2, storage-corrected; positive = release "
+                 "to the atmosphere", -100.0, 100.0, True),
+        Variable("rg", "W m-2", "global (incoming short-wave) radiation", -50.0, 1500.0, True),
+        Variable("tair", "°C", "air temperature", -60.0, 60.0, True),
+        Variable("vpd", "hPa", "vapour pressure deficit", -1.0, 100.0, True),
+        Variable("ustar", "m s-1", "friction velocity", 0.0, 5.0, True),
+        Variable("tsoil", "°C", "soil temperature", -50.0, 60.0, False),
+        Variable("rh", "%", "relative humidity", 0.0, 110.0, False),
+        Variable("nee_flag", "1", "the site's own quality flag; non-zero = reject",
+                 -np.inf, np.inf, False),
+    )
+}
+
+#: Names a site file must provide (``vpd`` or else ``rh``).
+REQUIRED = tuple(name for name, v in VARIABLES.items() if v.required)
+
+# unit spelling -> (scale, offset) such that canonical = value * scale + offset
+_TEMPERATURE = {"°C": (1.0, 0.0), "degC": (1.0, 0.0), "C": (1.0, 0.0),
+                "K": (1.0, -KELVIN_OFFSET), "kelvin": (1.0, -KELVIN_OFFSET)}
+_CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
+    "nee": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),
+            "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0)},
+    "rg": {"W m-2": (1.0, 0.0)},
+    "tair": _TEMPERATURE,
+    "tsoil": _TEMPERATURE,
+    "vpd": {"hPa": (1.0, 0.0), "kPa": (10.0, 0.0), "Pa": (0.01, 0.0)},
+    "ustar": {"m s-1": (1.0, 0.0)},
+    "rh": {"%": (1.0, 0.0), "fraction": (100.0, 0.0), "1": (100.0, 0.0)},
+    "nee_flag": {"1": (1.0, 0.0)},
+}
+
+
+def units_for(name: str) -> tuple[str, ...]:
+    """Return the unit spellings accepted for canonical variable `name`."""
+    return tuple(_CONVERSIONS[name])
+
+
+def to_canonical(values, name: str, unit: str | None = None) -> np.ndarray:
+    """Convert `values` of variable `name` from `unit` to its canonical unit.
+
+    Parameters
+    ----------
+    values : array_like
+        Values in `unit`.
+    name : str
+        Canonical variable name, a key of :data:`VARIABLES`.
+    unit : str, optional
+        Unit of `values`; ``None`` means the canonical unit already.
+
+    Returns
+    -------
+    numpy.ndarray
+        Float values in the canonical unit of `name`.
+
+    Raises
+    ------
+    UnitError
+        If `unit` is not known for `name`; the message lists the accepted units.
+
+    Examples
+    --------
+    >>> to_canonical([1.2], "vpd", "kPa")
+    array([12.])
+    """
+    values = np.asarray(values, dtype=float)
+    if unit is None:
+        return values.copy()
+    table = _CONVERSIONS.get(name)
+    if table is None:
+        raise UnitError(f"[input.units] {name}: {name!r} is not a canonical variable; "
+                        f"valid names: {', '.join(sorted(_CONVERSIONS))}")
+    if unit not in table:
+        raise UnitError(f"[input.units] {name} = {unit!r} is not a known unit for {name}; "
+                        f"use one of: {', '.join(repr(u) for u in table)}")
+    scale, offset = table[unit]
+    return values * scale + offset
+
+
+def saturation_vapour_pressure(tair):
+    """Saturation vapour pressure over water.
+
+    Parameters
+    ----------
+    tair : array_like
+        Air temperature [°C].
+
+    Returns
+    -------
+    numpy.ndarray
+        Saturation vapour pressure [hPa].
+
+    Notes
+    -----
+    Magnus form with the coefficients of Alduchov & Eskridge (1996), their
+    eq. 21 (AERK): ``es = 6.1094 exp(17.625 T / (T + 243.04))``, accurate to
+    better than 0.4 % between -40 and 50 °C.
+
+    References
+    ----------
+    Alduchov, O. A. & Eskridge, R. E. (1996). Improved Magnus form approximation of
+    saturation vapor pressure. Journal of Applied Meteorology 35:601–609.
+    doi:10.1175/1520-0450(1996)035<0601:IMFAOS>2.0.CO;2
+    """
+    tair = np.asarray(tair, dtype=float)
+    return 6.1094 * np.exp(17.625 * tair / (tair + 243.04))
+
+
+def vpd_from_rh(rh, tair):
+    """Vapour pressure deficit from relative humidity and air temperature.
+
+    Parameters
+    ----------
+    rh : array_like
+        Relative humidity [%].
+    tair : array_like
+        Air temperature [°C].
+
+    Returns
+    -------
+    numpy.ndarray
+        Vapour pressure deficit [hPa], ``es(T) (1 - rh/100)`` with `es` from
+        :func:`saturation_vapour_pressure`; humidity above 100 % gives 0.
+
+    References
+    ----------
+    Alduchov, O. A. & Eskridge, R. E. (1996). Journal of Applied Meteorology
+    35:601–609.
+    """
+    rh = np.clip(np.asarray(rh, dtype=float), None, 100.0)
+    return saturation_vapour_pressure(tair) * (1.0 - rh / 100.0)
