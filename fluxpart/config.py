@@ -31,11 +31,38 @@ class Config:
         Records with global radiation below this are night [W m-2]. 10 W m-2 is
         common practice (m) (Reichstein et al. 2005 use 10 W m-2 (m)); where Rg is
         missing, night is where potential radiation is zero.
+    despike_z : float
+        Despiking: a record is a spike where its double difference departs from the
+        block median by more than ``z MAD / 0.6745``; 4, Papale et al. (2006) (m).
+    despike_block_days : float
+        Length of the despiking blocks [days]; 13, Papale et al. (2006).
+    rg_margin, rg_relative_margin : float
+        Rg is rejected where it exceeds potential radiation by more than
+        ``max(rg_margin, rg_relative_margin x potential)`` [W m-2], [1]; 50 W m-2
+        and 0.2, our choice (clouds' edges can raise Rg above clear-sky values, never
+        far above the top of the atmosphere).
+    ustar_method : str
+        How the u* threshold is found: ``"moving_point"`` (default; Reichstein et al.
+        2005, Papale et al. 2006), ``"change_point"`` (Barr et al. 2013) or
+        ``"fixed"`` (use `ustar_threshold` for every year).
     ustar_threshold : float
-        Friction-velocity threshold [m s-1]: night records with u* below it are
-        rejected before gap filling. Default 0.2 m s-1 is our fixed choice, a value
-        typical of the thresholds reported for forests and grasslands (m), until the
-        threshold is detected from the data.
+        Fixed friction-velocity threshold [m s-1] for ``ustar_method = "fixed"`` and
+        the flagged fall-back for years where no threshold can be detected. 0.2 m s-1
+        is our choice, a value typical of the thresholds reported for forests and
+        grasslands (m).
+    ustar_min_threshold : float
+        Floor of a detected threshold [m s-1]; 0.1, our choice after the floors used
+        with the moving point test (m).
+    ustar_bootstrap_draws : int
+        Bootstrap resamples of the night data for the threshold's distribution; 100,
+        Papale et al. (2006) (m). 0 skips the bootstrap and the scenarios.
+    ustar_scenarios : tuple of int
+        Bootstrap percentiles of the threshold with which gap filling and both
+        partitionings are rerun, giving the threshold's share of the uncertainty;
+        (5, 50, 95), our choice after common practice. Each must be one of 5, 16,
+        50, 84, 95; empty for none.
+    gapfill_max_window_days : float
+        Largest half-width of any gap-filling window [days]; 70, our choice.
     rg_tolerance : float
         Marginal distribution sampling: similar global radiation within ± this
         [W m-2]; Reichstein et al. (2005), appendix: 50 W m-2.
@@ -69,11 +96,31 @@ class Config:
         Reichstein et al. (2005).
     rref_min_points : int
         Fewest measured night records in an Rref window; 2 (m).
+    daytime_window_days : float
+        Light-response fitting window [days]; 4, Lasslop et al. (2010).
+    daytime_window_step_days : float
+        Step between daytime windows [days]; 2, Lasslop et al. (2010).
+    daytime_min_points : int
+        Fewest measured daytime records for a window fit; 10, our choice.
+    agreement_margin : float
+        Largest relative difference between daytime and nighttime annual GPP (and
+        Reco), ``|day - night| / mean``, before the result warns that the methods
+        disagree [1]; 0.15, our choice: published comparisons of the two methods
+        found annual differences mostly within 10–15 % (m) (Lasslop et al. 2010).
     """
 
     seed: int = 0
     night_rg_threshold: float = 10.0
+    despike_z: float = 4.0
+    despike_block_days: float = 13.0
+    rg_margin: float = 50.0
+    rg_relative_margin: float = 0.2
+    ustar_method: str = "moving_point"
     ustar_threshold: float = 0.2
+    ustar_min_threshold: float = 0.1
+    ustar_bootstrap_draws: int = 100
+    ustar_scenarios: tuple[int, ...] = (5, 50, 95)
+    gapfill_max_window_days: float = 70.0
     rg_tolerance: float = 50.0
     tair_tolerance: float = 2.5
     vpd_tolerance: float = 5.0
@@ -88,6 +135,10 @@ class Config:
     e0_fallback: float | None = None
     rref_window_days: float = 4.0
     rref_min_points: int = 2
+    daytime_window_days: float = 4.0
+    daytime_window_step_days: float = 2.0
+    daytime_min_points: int = 10
+    agreement_margin: float = 0.15
 
     def __post_init__(self):
         _check(self)
@@ -110,9 +161,8 @@ class Config:
         for key in mapping:
             if key not in names:
                 raise ConfigError(f"{where} {key}: unknown setting{suggest_key(key, names)}")
-        values = dict(mapping)
-        if "e0_bounds" in values and isinstance(values["e0_bounds"], list):
-            values["e0_bounds"] = tuple(values["e0_bounds"])
+        values = {key: tuple(value) if isinstance(value, list) else value
+                  for key, value in mapping.items()}
         return cls(**values)
 
     @classmethod
@@ -134,6 +184,7 @@ class Config:
         """Return all settings as plain JSON-compatible values."""
         out = asdict(self)
         out["e0_bounds"] = list(self.e0_bounds)
+        out["ustar_scenarios"] = list(self.ustar_scenarios)
         return out
 
 
@@ -145,12 +196,16 @@ def suggest_key(key: str, valid) -> str:
     return f"; valid settings: {', '.join(sorted(valid))}"
 
 
-_CHOICES = {"respiration_driver": ("tair", "tsoil")}
+_CHOICES = {"respiration_driver": ("tair", "tsoil"),
+            "ustar_method": ("moving_point", "change_point", "fixed")}
 _POSITIVE = ("night_rg_threshold", "rg_tolerance", "tair_tolerance", "vpd_tolerance",
              "e0_window_days", "e0_window_step_days", "e0_min_temperature_range",
-             "e0_max_relative_error", "rref_window_days")
-_NON_NEGATIVE = ("ustar_threshold",)
-_COUNTS = ("e0_min_points", "e0_best_windows", "rref_min_points")
+             "e0_max_relative_error", "rref_window_days", "despike_z", "despike_block_days",
+             "gapfill_max_window_days", "daytime_window_days", "daytime_window_step_days",
+             "agreement_margin")
+_NON_NEGATIVE = ("ustar_threshold", "ustar_min_threshold", "rg_margin", "rg_relative_margin")
+_COUNTS = ("e0_min_points", "e0_best_windows", "rref_min_points", "daytime_min_points")
+_PERCENTILES = (5, 16, 50, 84, 95)
 
 
 def _is_number(value) -> bool:
@@ -174,6 +229,14 @@ def _check(config: Config) -> None:
         value = getattr(config, name)
         if not isinstance(value, int) or isinstance(value, bool) or value < 1:
             raise ConfigError(f"[processing] {name} = {value!r}: expected a whole number >= 1")
+    draws = config.ustar_bootstrap_draws
+    if not isinstance(draws, int) or isinstance(draws, bool) or draws < 0:
+        raise ConfigError(f"[processing] ustar_bootstrap_draws = {draws!r}: expected a whole "
+                          "number >= 0")
+    scenarios = config.ustar_scenarios
+    if not isinstance(scenarios, tuple) or any(p not in _PERCENTILES for p in scenarios):
+        raise ConfigError(f"[processing] ustar_scenarios = {scenarios!r}: expected a list of "
+                          f"bootstrap percentiles from {list(_PERCENTILES)}")
     low_high = config.e0_bounds
     if (not isinstance(low_high, tuple) or len(low_high) != 2
             or not all(_is_number(v) for v in low_high) or not 0 < low_high[0] < low_high[1]):

@@ -1,0 +1,106 @@
+"""The ``fluxpart`` command line: demo, run, check.
+
+Every user error (bad config, bad input, too little data) is printed as one
+``error: ...`` line naming the setting, column or row, with exit status 2; a
+traceback is shown only for a fault of fluxpart itself.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from .errors import FluxpartError
+
+__all__ = ["main"]
+
+CAUTION = (
+    "Caution: a tower budget is one line of evidence for carbon-credit quantification, not a "
+    "certified credit. Its uncertainty, representativeness and permanence must be judged under "
+    "the applicable crediting methodology and by accredited verification."
+)
+
+
+def _format_annual(annual) -> str:
+    columns = [c for c in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime",
+                           "reco_daytime", "ustar_threshold", "complete") if c in annual.columns]
+    return annual[columns].to_string(float_format=lambda v: f"{v:9.1f}")
+
+
+def _command_demo(args) -> int:
+    from . import demo
+    from .pipeline import process
+
+    frame, truth = demo.site_year(seed=args.seed)
+    site = demo.site()
+    result = process(frame, site)
+    out = Path(args.out)
+    result.write(out)
+    print(f"fluxpart demo: {site.name} (a fictional site), {frame.index[0]:%Y-%m-%d} to "
+          f"{frame.index[-1]:%Y-%m-%d}, {len(frame)} records")
+    print("\nAnnual budget [g C m-2; NEE < 0 is net uptake]:")
+    print(_format_annual(result.annual))
+    print("\nError against the demo's known truth [g C m-2]:")
+    print(demo.compare_with_truth(result, truth).to_string(float_format=lambda v: f"{v:9.1f}"))
+    print(f"\nWrote {out}/ (Parquet tables and manifest.json)")
+    print(CAUTION)
+    return 0
+
+
+def _command_run(args) -> int:
+    from .pipeline import process_site_config
+
+    result = process_site_config(args.config)
+    out = Path(args.out) if args.out else Path(args.config).with_suffix("").parent / (
+        Path(args.config).stem + "-output")
+    result.write(out)
+    print(f"fluxpart run: {result.site.name}, {len(result.timeseries)} records")
+    print("\nAnnual budget [g C m-2; NEE < 0 is net uptake]:")
+    print(_format_annual(result.annual))
+    print(f"\nWrote {out}/ (Parquet tables and manifest.json)")
+    print(CAUTION)
+    return 0
+
+
+def _command_check(args) -> int:
+    from .coverage import coverage_table, format_check
+    from .io import read_site_config
+
+    site_config = read_site_config(args.config)
+    frame, report = site_config.read()
+    table = coverage_table(frame, report.interval_minutes)
+    print(format_check(site_config.site, report, table))
+    return 0
+
+
+def _parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="fluxpart",
+        description="Carbon budgets from eddy-covariance flux-tower records.")
+    commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
+
+    demo = commands.add_parser("demo", help="run the full pipeline on the invented demo site")
+    demo.add_argument("--out", default="fluxpart-demo", help="output folder (default: %(default)s)")
+    demo.add_argument("--seed", type=int, default=0, help="seed of the demo data (default: 0)")
+    demo.set_defaults(handler=_command_demo)
+
+    run = commands.add_parser("run", help="process one site config (one or more years)")
+    run.add_argument("config", help="site config (TOML)")
+    run.add_argument("--out", help="output folder (default: <config name>-output beside it)")
+    run.set_defaults(handler=_command_run)
+
+    check = commands.add_parser("check", help="validate the input only: coverage, gaps, problems")
+    check.add_argument("config", help="site config (TOML)")
+    check.set_defaults(handler=_command_check)
+    return parser
+
+
+def main(argv=None) -> int:
+    """Run the command line; return the exit status."""
+    args = _parser().parse_args(argv)
+    try:
+        return args.handler(args)
+    except FluxpartError as error:
+        print(f"error: {error}", file=sys.stderr)
+        return 2

@@ -1,0 +1,839 @@
+"""Nighttime partitioning of NEE into ecosystem respiration and gross production.
+
+The method of Reichstein et al. (2005): night-time NEE is ecosystem respiration,
+whose temperature response follows Lloyd & Taylor (1994). Its temperature
+sensitivity E0 is fitted in short windows of measured night data and combined
+into one value per calendar year; with E0 fixed, the reference respiration Rref
+is fitted in consecutive 4-day windows and interpolated to every record.
+Respiration is then the Lloyd–Taylor equation on the gap-filled temperature,
+and gross primary production is respiration minus the gap-filled NEE.
+
+All functions are pure: they take arrays aligned with a start-stamped
+:class:`pandas.DatetimeIndex` and return new arrays and DataFrames.
+
+References
+----------
+Reichstein, M., Falge, E., Baldocchi, D., et al. (2005). On the separation of net
+ecosystem exchange into assimilation and ecosystem respiration: review and
+improved algorithm. Global Change Biology 11:1424–1439.
+doi:10.1111/j.1365-2486.2005.001002.x
+
+Lloyd, J. & Taylor, J. A. (1994). On the temperature dependence of soil
+respiration. Functional Ecology 8:315–323. doi:10.2307/2389824
+"""
+
+from __future__ import annotations
+
+import math
+from collections import Counter
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from ..constants import (
+    KELVIN_OFFSET,
+    LLOYD_TAYLOR_E0_KELVIN,
+    LLOYD_TAYLOR_T0_KELVIN,
+    LLOYD_TAYLOR_TREF_KELVIN,
+)
+from ..errors import ConfigError, FluxpartError, ImplausibleValueError, InsufficientDataError
+from ..responses import lloyd_taylor, lloyd_taylor_derivatives
+
+__all__ = [
+    "NighttimeResult",
+    "annual_e0",
+    "fit_e0_windows",
+    "fit_rref_windows",
+    "partition_nighttime",
+    "rref_per_record",
+]
+
+_SECONDS_PER_DAY = 86400.0
+# Levenberg–Marquardt controls of the batched E0 fit (our choices): relative
+# parameter change and relative SSR change below which a window has converged.
+_LM_MAX_ITERATIONS = 200
+_LM_XTOL = 1e-10
+_LM_FTOL = 1e-14
+_LM_LAMBDA_START = 1e-3
+_LM_LAMBDA_GIVE_UP = 1e12
+# Driving temperatures outside this range are not in °C (kelvin or a unit
+# mix-up) [°C]; our choice, wider than any plausible air or soil temperature.
+_TEMPERATURE_LIMITS = (-90.0, 70.0)
+_RESPIRATION_DRIVERS = ("tair", "tsoil")
+
+
+# --------------------------------------------------------------------------- #
+# Result object
+# --------------------------------------------------------------------------- #
+@dataclass(frozen=True)
+class NighttimeResult:
+    """Outcome of :func:`partition_nighttime`.
+
+    Attributes
+    ----------
+    reco : numpy.ndarray
+        Ecosystem respiration per record [µmol m-2 s-1], Lloyd–Taylor on the
+        gap-filled temperature; NaN where that temperature is missing.
+    gpp : numpy.ndarray
+        Gross primary production per record [µmol m-2 s-1], ``reco - nee_filled``;
+        NaN where either is missing. Not clipped: at night it scatters around zero
+        by the noise of NEE and of the respiration model, and small negative
+        values are kept as computed so that sums stay unbiased.
+    rref : numpy.ndarray
+        Reference respiration at 10 °C per record [µmol m-2 s-1], interpolated
+        between the Rref window centres.
+    e0 : numpy.ndarray
+        Temperature sensitivity applied to each record [K] (its year's E0).
+    e0_windows : pandas.DataFrame
+        Every short-window E0 fit, see :func:`fit_e0_windows`.
+    e0_annual : pandas.DataFrame
+        E0 per calendar year, see :func:`annual_e0`.
+    rref_windows : pandas.DataFrame
+        The retained Rref windows, see :func:`fit_rref_windows`.
+    respiration_driver : str
+        Name of the driving temperature (``"tair"`` or ``"tsoil"``), for the record.
+    """
+
+    reco: np.ndarray
+    gpp: np.ndarray
+    rref: np.ndarray
+    e0: np.ndarray
+    e0_windows: pd.DataFrame
+    e0_annual: pd.DataFrame
+    rref_windows: pd.DataFrame
+    respiration_driver: str
+
+
+# --------------------------------------------------------------------------- #
+# Input checks
+# --------------------------------------------------------------------------- #
+def _check_index(index) -> pd.DatetimeIndex:
+    if not isinstance(index, pd.DatetimeIndex):
+        raise FluxpartError(f"index: expected a pandas DatetimeIndex of interval starts, "
+                            f"found {type(index).__name__}")
+    if len(index) == 0:
+        raise InsufficientDataError("nighttime partitioning: the record is empty (no rows)")
+    if index.hasnans:
+        raise FluxpartError("index: contains missing timestamps (NaT)")
+    if not index.is_monotonic_increasing or not index.is_unique:
+        raise FluxpartError("index: timestamps must be unique and increasing")
+    return index
+
+
+def _as_float(name: str, values, length: int) -> np.ndarray:
+    try:
+        if isinstance(values, (pd.Series, pd.Index)):
+            array = values.to_numpy(dtype=float, na_value=np.nan)
+        else:
+            array = np.asarray(values, dtype=float)
+    except (TypeError, ValueError) as error:
+        raise FluxpartError(f"{name}: expected numbers, found values that are not: {error}") \
+            from None
+    if array.ndim != 1 or array.shape[0] != length:
+        raise FluxpartError(f"{name}: expected {length} values aligned with the index, "
+                            f"found shape {array.shape}")
+    return array
+
+
+def _as_temperature(name: str, values, length: int) -> np.ndarray:
+    array = _as_float(name, values, length)
+    finite = array[np.isfinite(array)]
+    low, high = _TEMPERATURE_LIMITS
+    outside = np.flatnonzero((array < low) | (array > high))
+    if finite.size and outside.size:
+        row = int(outside[0])
+        hint = " (kelvin? convert to °C)" if array[row] > 200 else ""
+        raise ImplausibleValueError(
+            f"{name}: {outside.size} values outside {low:g}..{high:g} °C, first at row {row} "
+            f"({array[row]:g}){hint}")
+    return array
+
+
+def _as_night(name: str, values, length: int) -> np.ndarray:
+    if isinstance(values, (pd.Series, pd.Index)):
+        if values.isna().any():
+            row = int(np.flatnonzero(values.isna().to_numpy())[0])
+            raise FluxpartError(f"{name}: missing value at row {row}; expected True/False "
+                                "for every record")
+        values = values.to_numpy()
+    array = np.asarray(values)
+    if array.ndim != 1 or array.shape[0] != length:
+        raise FluxpartError(f"{name}: expected {length} values aligned with the index, "
+                            f"found shape {array.shape}")
+    if array.dtype == bool:
+        return array
+    try:
+        numbers = array.astype(float)
+    except (TypeError, ValueError):
+        raise FluxpartError(f"{name}: expected True/False values, found dtype {array.dtype}") \
+            from None
+    bad = np.flatnonzero(~np.isin(numbers, (0.0, 1.0)))
+    if bad.size:
+        raise FluxpartError(f"{name}: expected True/False (or 1/0) for every record, found "
+                            f"{array[bad[0]]!r} at row {int(bad[0])}")
+    return numbers == 1.0
+
+
+def _check_positive(name: str, value) -> float:
+    if not isinstance(value, (int, float)) or isinstance(value, bool) or not value > 0:
+        raise ConfigError(f"{name} = {value!r}: expected a positive number")
+    return float(value)
+
+
+def _check_count(name: str, value) -> int:
+    if not isinstance(value, (int, np.integer)) or isinstance(value, bool) or value < 1:
+        raise ConfigError(f"{name} = {value!r}: expected a whole number >= 1")
+    return int(value)
+
+
+def _check_bounds(value) -> tuple[float, float]:
+    try:
+        low, high = (float(v) for v in value)
+    except (TypeError, ValueError):
+        raise ConfigError(f"e0_bounds = {value!r}: expected (low, high) in K") from None
+    if not 0 < low < high:
+        raise ConfigError(f"e0_bounds = {value!r}: expected 0 < low < high [K]")
+    return low, high
+
+
+# --------------------------------------------------------------------------- #
+# Time axis and windows
+# --------------------------------------------------------------------------- #
+def _window_anchor(index: pd.DatetimeIndex) -> pd.Timestamp:
+    """Local noon at or before the first record: windows then never split a night."""
+    half_day = pd.Timedelta(hours=12)
+    return (index[0] - half_day).normalize() + half_day
+
+
+def _seconds_since(index: pd.DatetimeIndex, anchor: pd.Timestamp) -> np.ndarray:
+    return np.asarray((index - anchor) / pd.Timedelta(seconds=1), dtype=float)
+
+
+def _record_end_seconds(seconds: np.ndarray) -> float:
+    """End of the last interval [s since the anchor] (its start plus the spacing)."""
+    spacing = float(np.median(np.diff(seconds))) if len(seconds) > 1 else 1800.0
+    return float(seconds[-1] + spacing)
+
+
+def _window_frame(anchor, starts_seconds, length_seconds) -> pd.DataFrame:
+    starts = anchor + pd.to_timedelta(starts_seconds, unit="s")
+    length = pd.Timedelta(seconds=float(length_seconds))
+    return pd.DataFrame({"window_start": starts, "window_end": starts + length,
+                         "window_centre": starts + length / 2})
+
+
+def _gather(window_lo, window_hi, *columns):
+    """Pad the records of every window into (windows, points) arrays and a mask."""
+    counts = window_hi - window_lo
+    width = max(int(counts.max()) if counts.size else 0, 1)
+    offsets = np.arange(width)
+    mask = offsets[None, :] < counts[:, None]
+    positions = np.where(mask, window_lo[:, None] + offsets[None, :], 0)
+    gathered = []
+    for column in columns:
+        values = column[positions] if column.size else np.zeros(positions.shape)
+        gathered.append(np.where(mask, values, 0.0))
+    return counts, mask, gathered
+
+
+def _temperature_term(temperature):
+    """``1/(Tref - T0) - 1/(T - T0)`` of Lloyd & Taylor (1994) eq. 11 [K-1]."""
+    kelvin = np.asarray(temperature, dtype=float) + KELVIN_OFFSET
+    return (1.0 / (LLOYD_TAYLOR_TREF_KELVIN - LLOYD_TAYLOR_T0_KELVIN)
+            - 1.0 / (kelvin - LLOYD_TAYLOR_T0_KELVIN))
+
+
+# --------------------------------------------------------------------------- #
+# Batched Levenberg–Marquardt fit of (Rref, E0)
+# --------------------------------------------------------------------------- #
+def _sum_of_squares(temperature, flux, mask, rref, e0):
+    d_rref, d_e0 = lloyd_taylor_derivatives(temperature, rref[:, None], e0[:, None])
+    residual = np.where(mask, flux - rref[:, None] * d_rref, 0.0)
+    with np.errstate(over="ignore", invalid="ignore"):
+        ssr = np.sum(residual * residual, axis=1)
+    return ssr, residual, np.where(mask, d_rref, 0.0), np.where(mask, d_e0, 0.0)
+
+
+def _initial_guess(temperature, flux, mask, counts):
+    """Log-linear start for E0 on the positive fluxes, then Rref in closed form."""
+    term = np.where(mask, _temperature_term(np.where(mask, temperature, 10.0)), 0.0)
+    positive = mask & (flux > 0)
+    n_positive = positive.sum(axis=1)
+    log_flux = np.where(positive, np.log(np.where(positive, flux, 1.0)), 0.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        mean_term = np.sum(np.where(positive, term, 0.0), axis=1) / n_positive
+        mean_log = np.sum(log_flux, axis=1) / n_positive
+        centred = np.where(positive, term - mean_term[:, None], 0.0)
+        slope = (np.sum(centred * (log_flux - mean_log[:, None]), axis=1)
+                 / np.sum(centred * centred, axis=1))
+    e0 = np.where((n_positive >= 2) & np.isfinite(slope), slope, LLOYD_TAYLOR_E0_KELVIN)
+    e0 = np.clip(e0, 10.0, 1000.0)
+    shape = np.where(mask, np.exp(e0[:, None] * term), 0.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        rref = np.sum(shape * flux, axis=1) / np.sum(shape * shape, axis=1)
+    rref = np.where(np.isfinite(rref) & (counts > 0), rref, 1.0)
+    return rref, e0
+
+
+def _fit_lloyd_taylor(temperature, flux, mask, counts):
+    """Least-squares (Rref, E0) of Lloyd–Taylor for many windows at once.
+
+    Levenberg–Marquardt with Marquardt's diagonal scaling and the analytic
+    Jacobian of :func:`~fluxpart.responses.lloyd_taylor_derivatives`; each window
+    has its own damping and stops on its own. Returns estimates, standard errors
+    from ``s² (JᵀJ)⁻¹`` with ``s² = SSR / (n - 2)``, and a convergence flag.
+    """
+    rref, e0 = _initial_guess(temperature, flux, mask, counts)
+    damping = np.full(rref.shape, _LM_LAMBDA_START)
+    done = counts < 2
+    converged = np.zeros(rref.shape, dtype=bool)
+    ssr, residual, d_rref, d_e0 = _sum_of_squares(temperature, flux, mask, rref, e0)
+    for _ in range(_LM_MAX_ITERATIONS):
+        if done.all():
+            break
+        a = np.sum(d_rref * d_rref, axis=1)
+        b = np.sum(d_rref * d_e0, axis=1)
+        c = np.sum(d_e0 * d_e0, axis=1)
+        g_rref = np.sum(d_rref * residual, axis=1)
+        g_e0 = np.sum(d_e0 * residual, axis=1)
+        scale = 1.0 + damping
+        with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+            det = a * c * scale * scale - b * b
+            step_rref = (g_rref * c * scale - b * g_e0) / det
+            step_e0 = (a * scale * g_e0 - b * g_rref) / det
+        step_rref = np.where(done, 0.0, step_rref)
+        step_e0 = np.where(done, 0.0, step_e0)
+        trial_rref, trial_e0 = rref + step_rref, e0 + step_e0
+        trial = _sum_of_squares(temperature, flux, mask, trial_rref, trial_e0)
+        better = ~done & np.isfinite(trial[0]) & (trial[0] <= ssr)
+        small_step = ((np.abs(step_rref) <= _LM_XTOL * (np.abs(rref) + _LM_XTOL))
+                      & (np.abs(step_e0) <= _LM_XTOL * (np.abs(e0) + _LM_XTOL)))
+        small_gain = better & (ssr - trial[0] <= _LM_FTOL * ssr)
+        rref = np.where(better, trial_rref, rref)
+        e0 = np.where(better, trial_e0, e0)
+        ssr = np.where(better, trial[0], ssr)
+        residual = np.where(better[:, None], trial[1], residual)
+        d_rref = np.where(better[:, None], trial[2], d_rref)
+        d_e0 = np.where(better[:, None], trial[3], d_e0)
+        damping = np.where(better, damping / 10.0, damping * 10.0)
+        newly = ~done & ((better & (small_step | small_gain)) | (damping > _LM_LAMBDA_GIVE_UP))
+        converged |= newly
+        done |= newly
+    a = np.sum(d_rref * d_rref, axis=1)
+    b = np.sum(d_rref * d_e0, axis=1)
+    c = np.sum(d_e0 * d_e0, axis=1)
+    dof = counts - 2
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        variance = np.where(dof > 0, ssr / np.maximum(dof, 1), np.nan)
+        det = a * c - b * b
+        rref_se = np.sqrt(variance * c / det)
+        e0_se = np.sqrt(variance * a / det)
+    converged &= np.isfinite(rref) & np.isfinite(e0) & np.isfinite(ssr)
+    return rref, e0, rref_se, e0_se, converged
+
+
+# --------------------------------------------------------------------------- #
+# E0 windows
+# --------------------------------------------------------------------------- #
+def _usable(nee, temperature, is_night):
+    """Night records with measured NEE and temperature."""
+    return is_night & np.isfinite(nee) & np.isfinite(temperature)
+
+
+def fit_e0_windows(index, nee, temperature, is_night, *, e0_window_days=15.0,
+                   e0_window_step_days=5.0, e0_min_points=6, e0_min_temperature_range=5.0,
+                   e0_bounds=(30.0, 450.0), e0_max_relative_error=0.5) -> pd.DataFrame:
+    """Fit Lloyd–Taylor (Rref, E0) to measured night NEE in short moving windows.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Start of each interval, local standard time, increasing.
+    nee : array_like
+        Measured NEE [µmol m-2 s-1]; NaN where not measured or rejected (e.g. by
+        the u* filter). Gap-filled values must not be passed here.
+    temperature : array_like
+        Measured driving temperature, air or soil [°C]; NaN where missing.
+    is_night : array_like of bool
+        True for night records.
+    e0_window_days : float, optional
+        Window length [days]; 15 days, Reichstein et al. (2005) (m).
+    e0_window_step_days : float, optional
+        Step between window starts [days]; 5 days (m).
+    e0_min_points : int, optional
+        Fewest usable night records for a window to be judged; 6 (m).
+    e0_min_temperature_range : float, optional
+        Smallest range of temperature among a window's records [K]; 5 K,
+        Reichstein et al. (2005).
+    e0_bounds : tuple of float, optional
+        Accepted E0 [K]; (30, 450) K, Reichstein et al. (2005) (m).
+    e0_max_relative_error : float, optional
+        Largest accepted ``e0_se / e0`` [1]; 0.5, our choice.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per window, in time order, with columns ``window_start``,
+        ``window_end`` (exclusive), ``window_centre`` (timestamps), ``year`` (int,
+        calendar year of the centre), ``points`` (usable night records),
+        ``temperature_range`` [K], ``e0`` [K], ``e0_se`` [K], ``rref``
+        [µmol m-2 s-1], ``rref_se`` [µmol m-2 s-1], ``accepted`` (bool) and
+        ``reason`` (str; empty for accepted windows, else the first rule the
+        window failed).
+
+    Raises
+    ------
+    InsufficientDataError
+        If there is no usable night record at all.
+    ConfigError
+        For an invalid setting.
+
+    Notes
+    -----
+    Windows start at local noon at or before the first record (so none splits a
+    night) and every `e0_window_step_days` after, until the last window reaches
+    the end of the record; a calendar year of records gives 72 windows at the
+    defaults. They cross year boundaries freely. A usable record is a night
+    record with finite NEE and temperature.
+
+    The model is ``NEE = Rref exp(E0 (1/(Tref - T0) - 1/(T - T0)))``, Lloyd &
+    Taylor (1994) eq. 11, Tref = 283.15 K, T0 = 227.13 K. All windows are fitted
+    at once by a batched Levenberg–Marquardt least-squares fit over padded
+    arrays with the analytic Jacobian; standard errors come from
+    ``s² (JᵀJ)⁻¹``, ``s² = SSR / (n - 2)``, as for an unweighted nonlinear
+    least-squares fit. Windows with at least three records are fitted even when
+    they fail a rule, so their estimates stay visible.
+
+    Rules, checked in this order (the first failure is the ``reason``): at least
+    `e0_min_points` records; temperature range at least
+    `e0_min_temperature_range`; fit converged with finite standard errors; E0
+    within `e0_bounds`; Rref positive; ``e0_se / e0`` at most
+    `e0_max_relative_error`.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439,
+    doi:10.1111/j.1365-2486.2005.001002.x, section "Nighttime-based approach"
+    and appendix (m).
+
+    Lloyd, J. & Taylor, J. A. (1994). Functional Ecology 8:315–323.
+    """
+    index = _check_index(index)
+    length = len(index)
+    nee = _as_float("nee", nee, length)
+    temperature = _as_temperature("temperature", temperature, length)
+    is_night = _as_night("is_night", is_night, length)
+    window_seconds = _check_positive("e0_window_days", e0_window_days) * _SECONDS_PER_DAY
+    step_seconds = _check_positive("e0_window_step_days", e0_window_step_days) * _SECONDS_PER_DAY
+    min_points = _check_count("e0_min_points", e0_min_points)
+    min_range = _check_positive("e0_min_temperature_range", e0_min_temperature_range)
+    low, high = _check_bounds(e0_bounds)
+    max_relative = _check_positive("e0_max_relative_error", e0_max_relative_error)
+
+    usable = _usable(nee, temperature, is_night)
+    if not usable.any():
+        raise InsufficientDataError(
+            f"E0 fit: no usable night record among {length} records ({int(is_night.sum())} "
+            "night records; every one lacks measured NEE or temperature). Nighttime "
+            "partitioning needs measured night NEE and temperature.")
+
+    anchor = _window_anchor(index)
+    seconds = _seconds_since(index, anchor)
+    end = _record_end_seconds(seconds)
+    n_windows = max(1, math.ceil((end - window_seconds) / step_seconds) + 1)
+    starts = np.arange(n_windows) * step_seconds
+    point_seconds = seconds[usable]
+    lo = np.searchsorted(point_seconds, starts, side="left")
+    hi = np.searchsorted(point_seconds, starts + window_seconds, side="left")
+    counts, mask, (temp_pad, flux_pad) = _gather(lo, hi, temperature[usable], nee[usable])
+
+    with np.errstate(invalid="ignore"):
+        t_max = np.where(mask, temp_pad, -np.inf).max(axis=1)
+        t_min = np.where(mask, temp_pad, np.inf).min(axis=1)
+    temperature_range = np.where(counts > 0, t_max - t_min, np.nan)
+
+    fit = counts >= 3
+    rref = np.full(n_windows, np.nan)
+    e0 = np.full(n_windows, np.nan)
+    rref_se = np.full(n_windows, np.nan)
+    e0_se = np.full(n_windows, np.nan)
+    converged = np.zeros(n_windows, dtype=bool)
+    if fit.any():
+        results = _fit_lloyd_taylor(np.where(mask[fit], temp_pad[fit], 10.0), flux_pad[fit],
+                                    mask[fit], counts[fit])
+        rref[fit], e0[fit], rref_se[fit], e0_se[fit], converged[fit] = results
+
+    with np.errstate(invalid="ignore", divide="ignore"):
+        relative_error = e0_se / np.abs(e0)
+    reason = np.select(
+        [counts < min_points,
+         ~(temperature_range >= min_range),
+         ~converged | ~np.isfinite(e0_se) | ~np.isfinite(rref_se),
+         (e0 < low) | (e0 > high),
+         ~(rref > 0),
+         ~(relative_error <= max_relative)],
+        [f"too few night records (< {min_points})",
+         f"temperature range below {min_range:g} K",
+         "fit did not converge or standard error undefined",
+         f"E0 outside {low:g}-{high:g} K",
+         "Rref not positive",
+         f"E0 relative standard error above {max_relative:g}"],
+        default="")
+    frame = _window_frame(anchor, starts, window_seconds)
+    frame["year"] = frame["window_centre"].dt.year.astype("int64")
+    frame["points"] = counts.astype("int64")
+    frame["temperature_range"] = temperature_range
+    frame["e0"] = e0
+    frame["e0_se"] = e0_se
+    frame["rref"] = rref
+    frame["rref_se"] = rref_se
+    frame["accepted"] = reason == ""
+    frame["reason"] = pd.Series(reason, dtype="str")
+    return frame
+
+
+# --------------------------------------------------------------------------- #
+# Annual E0
+# --------------------------------------------------------------------------- #
+def annual_e0(windows: pd.DataFrame, *, e0_best_windows=3, e0_fallback=None,
+              night_records=None) -> pd.DataFrame:
+    """Combine the best accepted E0 windows of each calendar year.
+
+    Parameters
+    ----------
+    windows : pandas.DataFrame
+        Output of :func:`fit_e0_windows`.
+    e0_best_windows : int, optional
+        How many accepted windows with the smallest ``e0_se`` are averaged; 3,
+        Reichstein et al. (2005) (m). Fewer are used when fewer are accepted.
+    e0_fallback : float or None, optional
+        E0 [K] for a year without any accepted window, flagged ``"fallback"``.
+        ``None`` (default) makes such a year an error.
+    night_records : pandas.Series, optional
+        Usable night records per calendar year (index: int year), as counted by
+        :func:`partition_nighttime`. Its index lists the years that need an E0;
+        without it, the years of the window centres are used.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Indexed by ``year`` (int), with columns ``e0`` [K], ``e0_se`` [K] (NaN
+        for a fall-back), ``windows_accepted``, ``windows_used``,
+        ``windows_tried`` (candidate windows of the year), ``night_records``
+        (``-1`` when not given) and ``source`` (``"fitted"`` or ``"fallback"``).
+
+    Raises
+    ------
+    InsufficientDataError
+        If a year has no accepted window and `e0_fallback` is None; the message
+        names the year, its night records, the windows tried and why they were
+        rejected, and the setting ``e0_fallback``.
+
+    Notes
+    -----
+    A year's candidates are the windows whose centre falls in it. A year the
+    record touches so briefly that no window is centred in it (e.g. a record that
+    starts on 30 December) takes the windows overlapping it instead.
+
+    The year's E0 is the plain (unweighted) mean of the best
+    ``min(e0_best_windows, accepted)`` windows, as in Reichstein et al. (2005)
+    (m); its standard error is ``sqrt(sum(se²)) / k``, the standard error of that
+    mean if the windows were independent. Overlapping windows share records, so
+    this understates the uncertainty somewhat.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439.
+    """
+    best = _check_count("e0_best_windows", e0_best_windows)
+    if e0_fallback is not None:
+        e0_fallback = _check_positive("e0_fallback", e0_fallback)
+    missing = {"window_start", "window_end", "year", "points", "e0", "e0_se", "accepted",
+               "reason"} - set(windows.columns)
+    if missing:
+        raise FluxpartError(f"windows: missing columns {sorted(missing)}; pass the output "
+                            "of fit_e0_windows")
+    if night_records is None:
+        years = sorted(int(y) for y in windows["year"].unique())
+        counts = dict.fromkeys(years, -1)
+    else:
+        counts = {int(y): int(n) for y, n in night_records.items()}
+        years = sorted(counts)
+    rows = []
+    for year in years:
+        candidates = windows[windows["year"] == year]
+        if candidates.empty:
+            year_start, year_end = pd.Timestamp(year, 1, 1), pd.Timestamp(year + 1, 1, 1)
+            candidates = windows[(windows["window_start"] < year_end)
+                                 & (windows["window_end"] > year_start)]
+        accepted = candidates[candidates["accepted"]]
+        if accepted.empty:
+            if e0_fallback is None:
+                raise InsufficientDataError(_no_e0_message(year, counts[year], candidates))
+            rows.append((year, e0_fallback, np.nan, 0, 0, len(candidates), counts[year],
+                         "fallback"))
+            continue
+        chosen = accepted.sort_values(["e0_se", "window_start"], kind="stable").head(best)
+        k = len(chosen)
+        e0 = float(chosen["e0"].mean())
+        e0_se = float(np.sqrt(np.sum(chosen["e0_se"].to_numpy() ** 2)) / k)
+        rows.append((year, e0, e0_se, len(accepted), k, len(candidates), counts[year],
+                     "fitted"))
+    frame = pd.DataFrame(rows, columns=["year", "e0", "e0_se", "windows_accepted",
+                                        "windows_used", "windows_tried", "night_records",
+                                        "source"])
+    frame = frame.astype({"year": "int64", "e0": "float64", "e0_se": "float64",
+                          "windows_accepted": "int64", "windows_used": "int64",
+                          "windows_tried": "int64", "night_records": "int64",
+                          "source": "str"})
+    return frame.set_index("year")
+
+
+def _no_e0_message(year: int, night_records: int, candidates: pd.DataFrame) -> str:
+    records = (f"{night_records} usable night records" if night_records >= 0
+               else "an unknown number of night records")
+    reasons = Counter(candidates["reason"])
+    detail = "; ".join(f"{reason}: {count}" for reason, count in sorted(reasons.items()))
+    return (f"E0 for year {year}: no acceptable Lloyd–Taylor window ({records} in the year, "
+            f"{len(candidates)} windows tried; rejected because {detail or 'no window'}). "
+            "Nighttime partitioning cannot estimate the temperature sensitivity from these "
+            "data. Set e0_fallback (a fixed E0 in K, in [processing]) to use a flagged "
+            "fall-back value for such years, or supply more measured night NEE.")
+
+
+# --------------------------------------------------------------------------- #
+# Rref windows
+# --------------------------------------------------------------------------- #
+def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=4.0,
+                     rref_min_points=2) -> pd.DataFrame:
+    """Fit the reference respiration Rref with E0 fixed, in consecutive windows.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Start of each interval, local standard time, increasing.
+    nee : array_like
+        Measured NEE [µmol m-2 s-1]; NaN where not measured or rejected.
+    temperature : array_like
+        Measured driving temperature [°C].
+    is_night : array_like of bool
+        True for night records.
+    e0 : array_like
+        E0 applied to each record [K] (its year's value from :func:`annual_e0`).
+    rref_window_days : float, optional
+        Window length [days]; 4 days, Reichstein et al. (2005).
+    rref_min_points : int, optional
+        Fewest usable night records in a window; 2 (m).
+
+    Returns
+    -------
+    pandas.DataFrame
+        The retained windows, in time order, with columns ``window_start``,
+        ``window_end`` (exclusive), ``window_centre``, ``points``, ``rref``
+        [µmol m-2 s-1], ``rref_se`` [µmol m-2 s-1] and ``e0`` [K] (mean E0 of the
+        window's records; it differs from the year's value only in a window that
+        spans a year boundary).
+
+    Raises
+    ------
+    InsufficientDataError
+        If no window can be retained.
+
+    Notes
+    -----
+    Windows are consecutive and non-overlapping, starting at local noon at or
+    before the first record. With ``f = exp(E0 (1/(Tref - T0) - 1/(T - T0)))``
+    (Lloyd & Taylor 1994, eq. 11) the model is linear in Rref, and its least
+    squares estimate is ``Rref = Σ f·NEE / Σ f²``, with standard error
+    ``sqrt(s² / Σ f²)``, ``s² = SSR / (n - 1)``. Windows with fewer than
+    `rref_min_points` records or a negative Rref are dropped.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439.
+    """
+    index = _check_index(index)
+    length = len(index)
+    nee = _as_float("nee", nee, length)
+    temperature = _as_temperature("temperature", temperature, length)
+    is_night = _as_night("is_night", is_night, length)
+    e0 = _as_float("e0", e0, length)
+    window_seconds = _check_positive("rref_window_days", rref_window_days) * _SECONDS_PER_DAY
+    min_points = _check_count("rref_min_points", rref_min_points)
+
+    usable = _usable(nee, temperature, is_night) & np.isfinite(e0)
+    anchor = _window_anchor(index)
+    seconds = _seconds_since(index, anchor)
+    end = _record_end_seconds(seconds)
+    n_windows = max(1, math.ceil(end / window_seconds))
+    starts = np.arange(n_windows) * window_seconds
+    point_seconds = seconds[usable]
+    lo = np.searchsorted(point_seconds, starts, side="left")
+    hi = np.searchsorted(point_seconds, starts + window_seconds, side="left")
+    shape_all = lloyd_taylor(temperature[usable], 1.0, e0[usable])
+    counts, mask, (shape, flux, e0_pad) = _gather(lo, hi, shape_all, nee[usable], e0[usable])
+
+    with np.errstate(invalid="ignore", divide="ignore"):
+        sum_ff = np.sum(shape * shape, axis=1)
+        rref = np.sum(shape * flux, axis=1) / sum_ff
+        residual = np.where(mask, flux - rref[:, None] * shape, 0.0)
+        variance = np.where(counts > 1, np.sum(residual * residual, axis=1)
+                            / np.maximum(counts - 1, 1), np.nan)
+        rref_se = np.sqrt(variance / sum_ff)
+        mean_e0 = np.sum(e0_pad, axis=1) / counts
+    keep = (counts >= min_points) & np.isfinite(rref) & (rref >= 0)
+    if not keep.any():
+        raise InsufficientDataError(
+            f"Rref fit: none of the {n_windows} windows of {rref_window_days:g} days has "
+            f"{min_points} or more usable night records and a non-negative Rref "
+            f"({int(usable.sum())} usable night records in all). Lower rref_min_points or "
+            "supply more measured night NEE.")
+    frame = _window_frame(anchor, starts, window_seconds)
+    frame["points"] = counts.astype("int64")
+    frame["rref"] = rref
+    frame["rref_se"] = rref_se
+    frame["e0"] = mean_e0
+    return frame[keep].reset_index(drop=True)
+
+
+def rref_per_record(index, rref_windows: pd.DataFrame) -> np.ndarray:
+    """Interpolate Rref linearly in time between window centres to every record.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Start of each interval.
+    rref_windows : pandas.DataFrame
+        Output of :func:`fit_rref_windows` (columns ``window_centre``, ``rref``).
+
+    Returns
+    -------
+    numpy.ndarray
+        Rref per record [µmol m-2 s-1]; constant beyond the first and last centre.
+
+    Notes
+    -----
+    Records are placed at their interval start, as the index stamps them. Across
+    a long gap without any retained window the interpolation is a straight line
+    between the windows on either side; the gap is visible in `rref_windows`.
+    """
+    index = _check_index(index)
+    if rref_windows.empty:
+        raise InsufficientDataError("Rref interpolation: no Rref window to interpolate from")
+    anchor = index[0]
+    centres = _seconds_since(pd.DatetimeIndex(rref_windows["window_centre"]), anchor)
+    return np.interp(_seconds_since(index, anchor), centres,
+                     rref_windows["rref"].to_numpy(dtype=float))
+
+
+# --------------------------------------------------------------------------- #
+# Whole method
+# --------------------------------------------------------------------------- #
+def partition_nighttime(index, nee_measured, nee_filled, temperature_measured,
+                        temperature_filled, is_night, *, e0_window_days=15.0,
+                        e0_window_step_days=5.0, e0_min_points=6,
+                        e0_min_temperature_range=5.0, e0_bounds=(30.0, 450.0),
+                        e0_max_relative_error=0.5, e0_best_windows=3, e0_fallback=None,
+                        rref_window_days=4.0, rref_min_points=2,
+                        respiration_driver="tair") -> NighttimeResult:
+    """Partition NEE into Reco and GPP by the nighttime method of Reichstein et al. (2005).
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Start of each interval, local standard time, 30- or 60-minute spacing,
+        one or several years.
+    nee_measured : array_like
+        Measured NEE after screening and u* filtering [µmol m-2 s-1]; NaN where
+        not measured or rejected. Only these values enter the fits.
+    nee_filled : array_like
+        Gap-filled NEE [µmol m-2 s-1]; GPP is computed against it.
+    temperature_measured : array_like
+        Measured driving temperature [°C] (NaN where missing), used in the fits.
+    temperature_filled : array_like
+        Gap-filled driving temperature [°C], used to compute Reco for every record.
+    is_night : array_like of bool
+        True for night records.
+    e0_window_days, e0_window_step_days, e0_min_points, e0_min_temperature_range, \
+e0_bounds, e0_max_relative_error
+        See :func:`fit_e0_windows`.
+    e0_best_windows, e0_fallback
+        See :func:`annual_e0`.
+    rref_window_days, rref_min_points
+        See :func:`fit_rref_windows`.
+    respiration_driver : str, optional
+        Which temperature the two temperature arrays are (``"tair"`` or
+        ``"tsoil"``); recorded in the result, the arrays themselves are used.
+
+    Returns
+    -------
+    NighttimeResult
+        Reco, GPP, Rref and E0 per record and the window tables.
+
+    Raises
+    ------
+    InsufficientDataError
+        If there are no usable night records, a year has no acceptable E0
+        window (and no `e0_fallback`), or no Rref window can be fitted.
+    ConfigError
+        For an invalid setting.
+    FluxpartError
+        For arrays not aligned with the index.
+    ImplausibleValueError
+        For temperatures that cannot be °C.
+
+    Notes
+    -----
+    1. E0 from short windows of measured night NEE (:func:`fit_e0_windows`),
+       one value per calendar year (:func:`annual_e0`); each record takes the E0
+       of the calendar year its interval starts in.
+    2. Rref with E0 fixed in consecutive 4-day windows (:func:`fit_rref_windows`),
+       interpolated to every record (:func:`rref_per_record`).
+    3. ``Reco = Rref exp(E0 (1/(Tref - T0) - 1/(T - T0)))`` on the gap-filled
+       temperature (Lloyd & Taylor 1994, eq. 11) and ``GPP = Reco - NEE_filled``
+       (NEE positive = release). GPP is not clipped at zero: night-time values
+       scatter around zero by noise, and clipping would bias the sums upward.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). On the separation of net ecosystem exchange into
+    assimilation and ecosystem respiration: review and improved algorithm. Global
+    Change Biology 11:1424–1439. doi:10.1111/j.1365-2486.2005.001002.x
+
+    Lloyd, J. & Taylor, J. A. (1994). Functional Ecology 8:315–323.
+    """
+    if respiration_driver not in _RESPIRATION_DRIVERS:
+        raise ConfigError(f"respiration_driver = {respiration_driver!r}: expected one of "
+                          f"{', '.join(repr(d) for d in _RESPIRATION_DRIVERS)}")
+    index = _check_index(index)
+    length = len(index)
+    nee_measured = _as_float("nee_measured", nee_measured, length)
+    nee_filled = _as_float("nee_filled", nee_filled, length)
+    temperature_measured = _as_temperature("temperature_measured", temperature_measured,
+                                           length)
+    temperature_filled = _as_temperature("temperature_filled", temperature_filled, length)
+    is_night = _as_night("is_night", is_night, length)
+
+    windows = fit_e0_windows(
+        index, nee_measured, temperature_measured, is_night, e0_window_days=e0_window_days,
+        e0_window_step_days=e0_window_step_days, e0_min_points=e0_min_points,
+        e0_min_temperature_range=e0_min_temperature_range, e0_bounds=e0_bounds,
+        e0_max_relative_error=e0_max_relative_error)
+    years = index.year.to_numpy()
+    usable = _usable(nee_measured, temperature_measured, is_night)
+    record_years = np.unique(years)
+    night_records = pd.Series([int(np.sum(usable & (years == y))) for y in record_years],
+                              index=record_years.astype("int64"))
+    e0_annual = annual_e0(windows, e0_best_windows=e0_best_windows, e0_fallback=e0_fallback,
+                          night_records=night_records)
+    e0 = e0_annual["e0"].reindex(years).to_numpy(dtype=float)
+    rref_windows = fit_rref_windows(index, nee_measured, temperature_measured, is_night, e0,
+                                    rref_window_days=rref_window_days,
+                                    rref_min_points=rref_min_points)
+    rref = rref_per_record(index, rref_windows)
+    reco = lloyd_taylor(temperature_filled, rref, e0)
+    gpp = reco - nee_filled
+    return NighttimeResult(reco=reco, gpp=gpp, rref=rref, e0=e0, e0_windows=windows,
+                           e0_annual=e0_annual, rref_windows=rref_windows,
+                           respiration_driver=respiration_driver)

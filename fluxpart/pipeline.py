@@ -1,0 +1,349 @@
+"""The thin orchestrator: validate once, run the stages in a fixed order, return a Result.
+
+Stages (each a pure function of its own module):
+
+1. solar geometry and the night mask (:mod:`fluxpart.solar`);
+2. screening: plausible ranges, the site's flag, despiking (:mod:`fluxpart.screening`);
+3. the u* threshold, detected with its bootstrap distribution or fixed (:mod:`fluxpart.ustar`);
+4. gap filling of the drivers, then of NEE after the u* filter (:mod:`fluxpart.gapfill`);
+5. nighttime and daytime partitioning (:mod:`fluxpart.partition`);
+6. steps 4–5 again for each u* scenario threshold (the threshold's share of uncertainty);
+7. daily, monthly and annual budgets with coverage (:mod:`fluxpart.budget`).
+
+Nothing here computes science; it only passes :class:`~fluxpart.config.Config`
+settings to the stage functions and assembles their outputs.
+"""
+
+from __future__ import annotations
+
+from concurrent.futures import ThreadPoolExecutor
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from . import budget, gapfill, screening, solar, ustar
+from .config import Config
+from .errors import ConfigError, FluxpartError, MissingColumnError, SpacingError
+from .partition import daytime, nighttime
+from .site import Site
+from .variables import REQUIRED, VARIABLES
+
+__all__ = ["Result", "process", "process_site_config"]
+
+_REASON_LOW_USTAR = {name: code for code, name in screening.REASON_CODES.items()}["low_ustar"]
+
+
+@dataclass(frozen=True)
+class Result:
+    """Everything one run of :func:`process` produced.
+
+    Attributes
+    ----------
+    site : Site
+        The site processed.
+    config : Config
+        The settings used.
+    timeseries : pandas.DataFrame
+        One row per interval (start-stamped DatetimeIndex ``time``): the canonical
+        inputs, solar geometry, screening flags, filled drivers, ``nee_filled`` and
+        its fill columns, ``gpp_nighttime``, ``reco_nighttime``, ``gpp_daytime``,
+        ``reco_daytime`` [µmol m-2 s-1]. Units: :func:`fluxpart.schema.units`.
+    daily, monthly, annual : pandas.DataFrame
+        Budgets [g C m-2 per period] with coverage; ``annual`` is indexed by year
+        and carries ``ustar_threshold`` [m s-1] and the u* scenario spread.
+    ustar : pandas.DataFrame
+        u* thresholds per year and season with their bootstrap percentiles [m s-1].
+    parameters : dict of str to pandas.DataFrame
+        Fitted parameter tables: ``nighttime_e0``, ``nighttime_e0_annual``,
+        ``nighttime_rref``, ``daytime``.
+    screening_counts : pandas.Series
+        Records per screening reason.
+    warnings : tuple of str
+        Things a reader of the budget must know (fall-backs used, methods that
+        disagree, partial years).
+    provenance : dict
+        Input file(s) and their SHA-256 where known, the screening thresholds.
+    """
+
+    site: Site
+    config: Config
+    timeseries: pd.DataFrame
+    daily: pd.DataFrame
+    monthly: pd.DataFrame
+    annual: pd.DataFrame
+    ustar: pd.DataFrame
+    parameters: dict
+    screening_counts: pd.Series
+    warnings: tuple = ()
+    provenance: dict = field(default_factory=dict)
+
+    def write(self, directory) -> Path:
+        """Write the Parquet tables and ``manifest.json`` to `directory`; return it."""
+        from .manifest import write_result
+
+        return write_result(self, directory)
+
+
+def _validate(frame: pd.DataFrame) -> int:
+    """Check the canonical frame once; return its interval [minutes]."""
+    if not isinstance(frame, pd.DataFrame):
+        raise FluxpartError(f"process() needs a pandas DataFrame, got {type(frame).__name__}")
+    if not isinstance(frame.index, pd.DatetimeIndex):
+        raise SpacingError("the frame's index must be a DatetimeIndex of interval starts "
+                           f"(local standard time), got {type(frame.index).__name__}")
+    if frame.index.tz is not None:
+        raise SpacingError(f"the frame's index carries the time zone {frame.index.tz}; use "
+                           "tz-naive local standard time and give Site.utc_offset")
+    missing = [name for name in REQUIRED if name not in frame.columns]
+    if missing == ["vpd"] and "rh" in frame.columns:
+        raise MissingColumnError("column 'vpd' is missing; derive it from 'rh' and 'tair' with "
+                                 "fluxpart.variables.vpd_from_rh, or read the file with "
+                                 "fluxpart.read_config, which does so")
+    if missing:
+        raise MissingColumnError(f"required column(s) {', '.join(map(repr, missing))} missing; "
+                                 f"the frame has: {', '.join(map(str, frame.columns))}")
+    unknown = [c for c in frame.columns if c not in VARIABLES]
+    if unknown:
+        raise MissingColumnError(f"column(s) {', '.join(map(repr, unknown))} are not canonical "
+                                 f"variables; valid names: {', '.join(VARIABLES)}")
+    for name in frame.columns:
+        if not pd.api.types.is_numeric_dtype(frame[name]):
+            raise FluxpartError(f"column {name!r} has dtype {frame[name].dtype}; expected numbers")
+    if len(frame) < 2:
+        raise SpacingError("the frame has fewer than two records")
+    steps = np.diff(frame.index.to_numpy().astype("datetime64[s]").astype(np.int64))
+    if (steps <= 0).any():
+        row = int(np.flatnonzero(steps <= 0)[0]) + 1
+        raise SpacingError(f"timestamps are not strictly increasing at row {row} "
+                           f"({frame.index[row]})")
+    if not (steps == steps[0]).all() or steps[0] not in (1800, 3600):
+        row = int(np.flatnonzero(steps != steps[0])[0]) + 1 if not (steps == steps[0]).all() else 1
+        raise SpacingError(f"records must be regularly spaced by 30 or 60 minutes (insert NaN "
+                           f"rows for missing stamps); found a step of "
+                           f"{steps[min(row, len(steps)) - 1] / 60:g} minutes at row {row}")
+    return int(steps[0] // 60)
+
+
+def _temperature(config: Config, frame: pd.DataFrame) -> str:
+    driver = config.respiration_driver
+    if driver not in frame.columns:
+        raise ConfigError(f"[processing] respiration_driver = {driver!r}, but the input has no "
+                          f"column {driver!r}; map it in [input.columns] or use 'tair'")
+    return driver
+
+
+def _ustar_thresholds(frame, screened_nee, is_night, site, config):
+    """Return (u* table, bootstrap draws, central threshold per year, scenario thresholds).
+
+    The central threshold of a year is the detector's value on the data; years
+    without one fall back, flagged, to the fixed ``ustar_threshold``. Scenario
+    thresholds are the bootstrap percentiles named in ``ustar_scenarios``.
+    """
+    years = pd.Index(np.unique(frame.index.year), name="year")
+    if config.ustar_method == "fixed":
+        table = pd.DataFrame({"year": years.to_numpy(), "period": "year", "detector": "fixed",
+                              "threshold": config.ustar_threshold, "source": "fixed"})
+        central = pd.Series(config.ustar_threshold, index=years, name="threshold")
+        return table, pd.DataFrame(), central, {}
+    found = ustar.detect_threshold(
+        frame.index, screened_nee, frame["ustar"].to_numpy(), frame["tair"].to_numpy(),
+        is_night, site.latitude, detector=config.ustar_method,
+        draws=config.ustar_bootstrap_draws, seed=config.seed,
+        min_threshold=config.ustar_min_threshold)
+    annual = found.annual.set_index("year").reindex(years)
+    detected = annual["threshold"].astype(float)
+    central = detected.fillna(config.ustar_threshold).rename("threshold")
+    table = found.table()
+    fallback_years = set(detected.index[detected.isna()])
+    table["source"] = np.where(table["year"].isin(fallback_years) & (table["period"] == "year"),
+                               "fallback", np.where(table["threshold"].isna(), "none",
+                                                    "detected"))
+    table.loc[table["source"] == "fallback", "threshold"] = config.ustar_threshold
+    scenarios = {}
+    if config.ustar_bootstrap_draws > 0:
+        for percentile in config.ustar_scenarios:
+            values = annual[f"threshold_p{percentile:02d}"].astype(float)
+            scenarios[f"ustar_p{percentile:02d}"] = values.fillna(central)
+    return table, found.bootstrap, central, scenarios
+
+
+def _per_record(index, per_year: pd.Series) -> np.ndarray:
+    return per_year.reindex(index.year).to_numpy(dtype=float)
+
+
+def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
+                        temperature, config):
+    """Gap-fill NEE after the u* filter at `threshold` and partition it both ways."""
+    too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
+    nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
+    filled = gapfill.fill_marginal(
+        nee_measured, conditions, frame.index, rg_tolerance=config.rg_tolerance,
+        tair_tolerance=config.tair_tolerance, vpd_tolerance=config.vpd_tolerance,
+        max_window_days=config.gapfill_max_window_days)
+    temperature_filled = filled_drivers[f"{temperature}_filled"].to_numpy()
+    night = nighttime.partition_nighttime(
+        frame.index, nee_measured, filled["value"].to_numpy(), screened[temperature].to_numpy(),
+        temperature_filled, is_night, e0_window_days=config.e0_window_days,
+        e0_window_step_days=config.e0_window_step_days, e0_min_points=config.e0_min_points,
+        e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
+        e0_max_relative_error=config.e0_max_relative_error,
+        e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
+        rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
+        respiration_driver=temperature)
+    day = daytime.partition_daytime(
+        frame.index, nee_measured, filled_drivers["rg_filled"].to_numpy(),
+        filled_drivers["vpd_filled"].to_numpy(), temperature_filled, is_night, night.e0,
+        window_days=config.daytime_window_days, window_step_days=config.daytime_window_step_days,
+        min_points=config.daytime_min_points)
+    return too_calm, nee_measured, filled, night, day
+
+
+def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
+            provenance: dict | None = None) -> Result:
+    """Turn a canonical site record into gap-filled, partitioned fluxes and budgets.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Canonical variables (``nee`` [µmol m-2 s-1], ``rg`` [W m-2], ``tair`` [°C],
+        ``vpd`` [hPa], ``ustar`` [m s-1], optionally ``tsoil`` [°C], ``rh`` [%],
+        ``nee_flag``) on a regular 30- or 60-minute DatetimeIndex of interval starts
+        in local standard time; one or more years. Not modified.
+    site : Site
+        Location of the tower.
+    config : Config, optional
+        Settings; ``Config()`` (the published defaults) when omitted.
+    provenance : dict, optional
+        Facts about the input recorded in the manifest (file paths and hashes).
+
+    Returns
+    -------
+    Result
+        Time series, budgets, u* thresholds, parameter tables and warnings.
+
+    Raises
+    ------
+    FluxpartError
+        (a subclass) for bad input or settings, or too little data for a method.
+    """
+    config = Config() if config is None else config
+    if not isinstance(site, Site):
+        raise ConfigError(f"site must be a fluxpart.Site, got {type(site).__name__}")
+    interval = _validate(frame)
+    frame = frame.copy()
+    frame.index = frame.index.rename("time")
+    temperature = _temperature(config, frame)
+    warnings = []
+
+    geometry = solar.solar_geometry(frame.index, site, interval_minutes=interval)
+    potential = geometry["potential_radiation"].to_numpy()
+    is_night = solar.night_mask(frame["rg"].to_numpy(), potential, config.night_rg_threshold)
+
+    screens = screening.screen(
+        frame, potential, is_night, despike_z=config.despike_z,
+        despike_block_days=config.despike_block_days, rg_margin=config.rg_margin,
+        rg_relative_margin=config.rg_relative_margin)
+    screened = screens.screened
+
+    ustar_table, ustar_draws, central, scenario_thresholds = _ustar_thresholds(
+        frame, screens.nee_screened.to_numpy(), is_night, site, config)
+    if (ustar_table["source"] == "fallback").any():
+        years = sorted(set(ustar_table.loc[ustar_table["source"] == "fallback", "year"]))
+        warnings.append(f"u* threshold not detectable in {', '.join(map(str, years))}: the fixed "
+                        f"ustar_threshold = {config.ustar_threshold} m s-1 was used there")
+
+    filled_drivers = gapfill.fill_drivers(
+        screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days)
+    conditions = gapfill.driver_conditions(filled_drivers)
+
+    runs = {"central": _per_record(frame.index, central)}
+    runs.update({name: _per_record(frame.index, values)
+                 for name, values in scenario_thresholds.items()})
+    arguments = (frame, screened, filled_drivers, conditions, is_night)
+    with ThreadPoolExecutor(max_workers=min(2, len(runs))) as pool:
+        futures = {name: pool.submit(_fill_and_partition, *arguments, threshold, temperature,
+                                     config) for name, threshold in runs.items()}
+        outcomes = {name: future.result() for name, future in futures.items()}
+
+    too_calm, nee_measured, filled, night, day = outcomes["central"]
+    flags = screens.flags.assign(nee_low_ustar=too_calm)
+    reason = screens.reason.to_numpy().copy()
+    reason[(reason == 0) & too_calm] = _REASON_LOW_USTAR
+    timeseries = pd.concat([
+        frame,
+        geometry,
+        pd.DataFrame({"is_night": is_night}, index=frame.index),
+        flags,
+        pd.DataFrame({"rejection_reason": reason.astype(np.int8),
+                      "ustar_threshold": runs["central"],
+                      "nee_measured": nee_measured}, index=frame.index),
+        filled_drivers,
+        filled.rename(columns=lambda c: "nee_filled" if c == "value" else f"nee_fill_{c}"),
+        pd.DataFrame({"reco_nighttime": night.reco, "gpp_nighttime": night.gpp,
+                      "rref_nighttime": night.rref, "e0_nighttime": night.e0,
+                      "reco_daytime": day.reco, "gpp_daytime": day.gpp}, index=frame.index),
+    ], axis=1)
+
+    budgets = budget.aggregate(timeseries, interval)
+    annual = budgets.annual.assign(ustar_threshold=central.reindex(budgets.annual.index))
+    annual = _scenario_spread(annual, outcomes, frame.index, interval)
+    counts = screens.counts.copy()
+    counts[screening.REASON_CODES[_REASON_LOW_USTAR]] = int((reason == _REASON_LOW_USTAR).sum())
+    counts[screening.REASON_CODES[0]] = int((reason == 0).sum())
+    for year, row in annual.iterrows():
+        if not row["complete"]:
+            warnings.append(f"{year} is a partial or not fully filled year "
+                            f"({int(row['records'])} of {int(row['records_expected'])} records): "
+                            "its sums are not annual totals and are not scaled up")
+    return Result(
+        site=site, config=config, timeseries=timeseries, daily=budgets.daily,
+        monthly=budgets.monthly, annual=annual, ustar=ustar_table,
+        parameters={"nighttime_e0": night.e0_windows, "nighttime_e0_annual": night.e0_annual,
+                    "nighttime_rref": night.rref_windows, "daytime": day.parameters,
+                    "ustar_bootstrap": ustar_draws},
+        screening_counts=counts, warnings=tuple(warnings),
+        provenance={**(provenance or {}), "screening": screens.thresholds})
+
+
+def _scenario_spread(annual, outcomes, index, interval) -> pd.DataFrame:
+    """Annual sums of each u* scenario and their spread (max - min) [g C m-2]."""
+    if len(outcomes) == 1:
+        return annual
+    sums = {}
+    for name, (_, _, filled, night, day) in outcomes.items():
+        per_record = pd.DataFrame({"nee": filled["value"].to_numpy(),
+                                   "gpp_nighttime": night.gpp, "reco_nighttime": night.reco,
+                                   "gpp_daytime": day.gpp, "reco_daytime": day.reco},
+                                  index=index)
+        carbon = per_record * float(budget.flux_to_carbon(1.0, interval))
+        sums[name] = carbon.groupby(index.year).sum(min_count=1)
+    out = annual.copy()
+    for flux in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
+        table = pd.DataFrame({name: s[flux] for name, s in sums.items()})
+        for name in table.columns:
+            if name != "central":
+                out[f"{flux}_{name}"] = table[name].reindex(out.index)
+        out[f"{flux}_ustar_spread"] = (table.max(axis=1) - table.min(axis=1)).reindex(out.index)
+    return out
+
+
+def process_site_config(path, config: Config | None = None) -> Result:
+    """Read a site config (TOML) and its input file, then :func:`process` them.
+
+    The input file's path and SHA-256 and the config file's SHA-256 are recorded
+    in the result's provenance (and so in ``manifest.json``).
+    """
+    from .io import read_site_config
+    from .store import file_sha256
+
+    site_config = read_site_config(path)
+    frame, report = site_config.read()
+    config = Config.from_toml(path) if config is None else config
+    provenance = {
+        "site_config": {"path": str(Path(path).resolve()), "sha256": file_sha256(path)},
+        "input": {"path": str(site_config.input_path), "sha256": file_sha256(
+            site_config.input_path)},
+    }
+    return process(frame, site_config.site, config, provenance=provenance)

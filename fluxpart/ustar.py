@@ -1,0 +1,1190 @@
+"""The friction-velocity (u*) threshold: seasons, two detectors and a bootstrap.
+
+At calm nights the eddy-covariance flux misses part of the respiration (it is
+stored or drained away below the sensor), and measured night NEE falls with
+decreasing friction velocity u*. Above a threshold it no longer depends on u*.
+Two published detectors find that threshold from the night data:
+
+- :func:`moving_point_threshold`, the moving point test of Reichstein et al.
+  (2005) as applied by Papale et al. (2006);
+- :func:`change_point_threshold`, the change-point detection of Barr et al.
+  (2013), operational two-phase regression with an F test.
+
+:func:`bootstrap_threshold` resamples the night records to give the
+threshold's distribution; :func:`detect_threshold` runs a detector and its
+bootstrap on a record of one or more years and returns a frozen
+:class:`UstarResult` (the content of ``ustar.parquet``).
+
+Seasons (:func:`assign_seasons`): meteorological seasons of three calendar
+months. Northern hemisphere (latitude >= 0): winter = Dec, Jan, Feb; spring =
+Mar, Apr, May; summer = Jun, Jul, Aug; autumn = Sep, Oct, Nov. Southern
+hemisphere (latitude < 0): the same month groups with the names shifted by six
+months (summer = Dec, Jan, Feb, ...). Thresholds are computed per season per
+calendar year; December belongs to the season of its own calendar year, with
+January and February of that year, so that each year's thresholds use only
+that year's records.
+"""
+
+from __future__ import annotations
+
+import functools
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+import statsmodels.api as sm
+
+from .errors import ConfigError, FluxpartError, TimestampError
+
+__all__ = [
+    "DETECTORS",
+    "PERCENTILES",
+    "SEASONS",
+    "ThresholdEstimate",
+    "UstarResult",
+    "assign_seasons",
+    "bootstrap_threshold",
+    "change_point_critical_value",
+    "change_point_threshold",
+    "detect_threshold",
+    "moving_point_threshold",
+]
+
+#: Season names in table order.
+SEASONS = ("winter", "spring", "summer", "autumn")
+
+#: Valid detector names.
+DETECTORS = ("moving_point", "change_point")
+
+#: Percentiles of the bootstrap distribution that are reported [%]: the median,
+#: ±1 standard deviation of a normal distribution (16/84) and the 90 % interval.
+PERCENTILES = (5, 16, 50, 84, 95)
+
+# month (1..12, index 0 unused) -> position in SEASONS, northern hemisphere
+_NORTH = np.array([0, 0, 0, 1, 1, 1, 2, 2, 2, 3, 3, 3, 0])
+_NORTH_MONTHS = {"winter": "DJF", "spring": "MAM", "summer": "JJA", "autumn": "SON"}
+_SOUTH_MONTHS = {"summer": "DJF", "autumn": "MAM", "winter": "JJA", "spring": "SON"}
+
+# Seed of the Monte Carlo estimate of the change-point critical values; fixed so
+# that the critical values, like every result, are the same on every run.
+_CRITICAL_VALUE_SEED = 20130215
+_CRITICAL_VALUE_SIMULATIONS = 10000
+# Bootstrap draws processed together (bounds memory); the results do not depend on it.
+_DRAWS_PER_CHUNK = 10
+
+
+@dataclass(frozen=True)
+class ThresholdEstimate:
+    """Thresholds found by one detector on one data set.
+
+    Attributes
+    ----------
+    seasonal : pandas.DataFrame
+        One row per year and season of the record: ``year``, ``season``,
+        ``months`` (e.g. ``"DJF"``), ``night_records`` (usable night records),
+        ``temperature_classes_used`` (classes or strata that gave a threshold),
+        ``threshold_detected`` [m s-1] (before the floor), ``threshold``
+        [m s-1] (at least the floor; NaN where none was found) and ``reason``
+        (empty where a threshold was found, else why not).
+    annual : pandas.DataFrame
+        One row per calendar year: ``year``, ``night_records``,
+        ``seasons_used``, ``threshold_detected``, ``threshold`` [m s-1] and
+        ``reason``.
+    strata : pandas.DataFrame
+        One row per year, season and temperature class with the detector's
+        own statistics (see the detector).
+    """
+
+    seasonal: pd.DataFrame
+    annual: pd.DataFrame
+    strata: pd.DataFrame
+
+
+@dataclass(frozen=True)
+class UstarResult:
+    """The u* threshold of a record, its bootstrap spread and the settings.
+
+    Attributes
+    ----------
+    seasonal : pandas.DataFrame
+        As :attr:`ThresholdEstimate.seasonal`, plus ``threshold_p05``,
+        ``threshold_p16``, ``threshold_p50``, ``threshold_p84``,
+        ``threshold_p95`` [m s-1] (bootstrap percentiles) and ``draws_valid``
+        (draws that gave a threshold).
+    annual : pandas.DataFrame
+        As :attr:`ThresholdEstimate.annual`, plus the same percentile
+        columns, ``draws_valid`` and ``detector``.
+    bootstrap : pandas.DataFrame
+        Every draw, long format: ``draw``, ``year``, ``period`` (a season
+        name, or ``"year"`` for the annual value) and ``threshold`` [m s-1].
+    strata : pandas.DataFrame
+        The detector's statistics per stratum on the original data.
+    settings : dict
+        The detector, its settings, the number of draws and the seed
+        (JSON-compatible, for the manifest).
+    """
+
+    seasonal: pd.DataFrame
+    annual: pd.DataFrame
+    bootstrap: pd.DataFrame
+    strata: pd.DataFrame
+    settings: dict = field(default_factory=dict)
+
+    def table(self) -> pd.DataFrame:
+        """Annual and seasonal thresholds in one long table (for ``ustar.parquet``).
+
+        Returns
+        -------
+        pandas.DataFrame
+            Columns ``year``, ``period`` (``"year"`` or a season name),
+            ``months``, ``detector``, ``night_records``, ``threshold_detected``,
+            ``threshold``, the percentile columns, ``draws_valid`` and
+            ``reason``; annual row first within each year.
+        """
+        columns = ["year", "period", "months", "detector", "night_records",
+                   "threshold_detected", "threshold", *_percentile_columns(), "draws_valid",
+                   "reason"]
+        annual = self.annual.assign(period="year", months="")
+        seasonal = self.seasonal.rename(columns={"season": "period"}).assign(
+            detector=self.settings.get("detector", ""))
+        both = pd.concat([annual[columns], seasonal[columns]], ignore_index=True)
+        rank = both["period"].map({"year": 0, **{s: i + 1 for i, s in enumerate(SEASONS)}})
+        return (both.assign(_rank=rank).sort_values(["year", "_rank"], kind="stable")
+                .drop(columns="_rank").reset_index(drop=True))
+
+    def threshold_for(self, index, *, column="threshold", fallback=None) -> np.ndarray:
+        """The annual threshold of each record's calendar year.
+
+        Parameters
+        ----------
+        index : pandas.DatetimeIndex
+            Interval start times.
+        column : str, optional
+            Column of :attr:`annual` to use, e.g. ``"threshold"`` (default) or
+            ``"threshold_p50"``.
+        fallback : float or None, optional
+            Threshold for years without one [m s-1]; None leaves them NaN.
+
+        Returns
+        -------
+        numpy.ndarray
+            Threshold per record [m s-1].
+        """
+        index = _check_index(index)
+        if column not in self.annual.columns:
+            raise ConfigError(f"u* threshold column {column!r} does not exist; use one of: "
+                              f"{', '.join(c for c in self.annual.columns if 'threshold' in c)}")
+        by_year = pd.Series(self.annual[column].to_numpy(dtype=float),
+                            index=self.annual["year"].to_numpy())
+        values = by_year.reindex(np.asarray(index.year)).to_numpy(dtype=float)
+        if fallback is not None:
+            values = np.where(np.isnan(values), float(fallback), values)
+        return values
+
+
+def assign_seasons(index, latitude) -> pd.DataFrame:
+    """Calendar year and meteorological season of each record.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Interval start times in local standard time.
+    latitude : float
+        Site latitude, north positive [degrees]; negative selects the southern
+        hemisphere's season names. The equator counts as northern.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Same index; ``year`` (int64, the calendar year of the record) and
+        ``season`` (one of :data:`SEASONS`).
+
+    Raises
+    ------
+    TimestampError
+        If `index` is not a DatetimeIndex.
+    ConfigError
+        If `latitude` is not a number in [-90, 90].
+
+    Notes
+    -----
+    Meteorological seasons of three whole months (common practice); the
+    southern hemisphere's are shifted by six months. December is assigned to
+    its own calendar year (see the module notes).
+    """
+    index = _check_index(index)
+    if (isinstance(latitude, bool) or not isinstance(latitude, (int, float, np.number))
+            or not -90.0 <= float(latitude) <= 90.0):
+        raise ConfigError(f"[site] latitude = {latitude!r}: expected a number of degrees in "
+                          "[-90, 90]")
+    position = _NORTH[np.asarray(index.month)]
+    if latitude < 0:
+        position = (position + 2) % 4
+    return pd.DataFrame({"year": np.asarray(index.year, dtype=np.int64),
+                         "season": np.asarray(SEASONS, dtype=object)[position]},
+                        index=index).astype({"season": "str"})
+
+
+def moving_point_threshold(nee, ustar, tair, is_night, seasons, *, temperature_classes=6,
+                           ustar_classes=20, plateau_share=0.99, correlation_limit=0.4,
+                           min_threshold=0.1, min_records_per_class=3) -> ThresholdEstimate:
+    """u* threshold by the moving point test (Reichstein et al. 2005; Papale et al. 2006).
+
+    Parameters
+    ----------
+    nee : array_like
+        Net ecosystem exchange, screened [µmol m-2 s-1]; NaN where missing.
+    ustar : array_like
+        Friction velocity [m s-1].
+    tair : array_like
+        Air temperature [°C] (or the temperature that drives respiration).
+    is_night : array_like of bool
+        True for night records.
+    seasons : pandas.DataFrame
+        ``year`` and ``season`` of each record, from :func:`assign_seasons`.
+    temperature_classes : int, optional
+        Temperature classes of equal size per season; default 6, Reichstein
+        et al. (2005) (m).
+    ustar_classes : int, optional
+        u* classes of equal size per temperature class; default 20,
+        Reichstein et al. (2005) (m).
+    plateau_share : float, optional
+        Share of the mean NEE of the higher u* classes that a class must reach
+        [1]; default 0.99, Reichstein et al. (2005) (m).
+    correlation_limit : float, optional
+        A temperature class is used only where ``|r(u*, T)|`` is below this
+        [1]; default 0.4, Papale et al. (2006) (m).
+    min_threshold : float, optional
+        Floor of the reported thresholds [m s-1]; default 0.1 m s-1 (m).
+    min_records_per_class : int, optional
+        Fewest records per (temperature, u*) class on average; a season needs
+        ``temperature_classes * ustar_classes * min_records_per_class`` usable
+        night records. Default 3, our choice.
+
+    Returns
+    -------
+    ThresholdEstimate
+        Seasonal and annual tables; ``strata`` has one row per year, season
+        and temperature class with ``records``, ``tair_mean`` [°C],
+        ``correlation`` [1], ``plateau_reached`` (bool), ``threshold``
+        [m s-1] (the class threshold) and ``used`` (bool).
+
+    Raises
+    ------
+    ConfigError
+        For an invalid setting.
+    FluxpartError
+        If the inputs differ in length.
+
+    Notes
+    -----
+    Usable records are night records with NEE, u* and temperature present.
+    What is computed, per calendar year and season:
+
+    1. The records are sorted by temperature and split into
+       `temperature_classes` classes of equal size (sizes differ by at most
+       one record); each class is sorted by u* and split into `ustar_classes`
+       classes of equal size.
+    2. In each temperature class, for u* class ``k = 1 .. n-1`` (lowest
+       first), the mean NEE of the class, ``F_k``, is compared with the mean
+       NEE of all records in the classes above it, ``P_k``. The threshold of
+       the temperature class is the mean u* of the first class with
+       ``F_k >= plateau_share * P_k``; a comparison is only made where
+       ``P_k > 0`` (respiration, positive NEE), and a temperature class where
+       no class passes gives none.
+    3. A temperature class counts only where the Pearson correlation between
+       u* and temperature within it is weak, ``|r| < correlation_limit``.
+    4. The seasonal threshold is the median over the counted temperature
+       classes; the annual threshold is the maximum over the year's seasons.
+       Both are raised to `min_threshold` where lower.
+
+    Seasons with too few usable records, or where no temperature class gives
+    a threshold, report NaN with the reason; a year with no seasonal
+    threshold reports NaN.
+
+    References
+    ----------
+    Reichstein, M., Falge, E., Baldocchi, D. et al. (2005). On the separation
+    of net ecosystem exchange into assimilation and ecosystem respiration:
+    review and improved algorithm. Global Change Biology 11:1424–1439.
+    doi:10.1111/j.1365-2486.2005.001002.x
+
+    Papale, D. et al. (2006). Towards a standardized processing of net
+    ecosystem exchange measured with eddy covariance technique: algorithms and
+    uncertainty estimation. Biogeosciences 3:571–583. doi:10.5194/bg-3-571-2006
+    """
+    options = _moving_point_options(temperature_classes, ustar_classes, plateau_share,
+                                    correlation_limit, min_threshold, min_records_per_class)
+    data = _night_data(nee, ustar, tair, is_night, seasons, need_tair=True)
+    core = _moving_point_core(data.nee, data.ustar, data.tair, data.group, data.groups, options)
+    return _estimate_tables(data, core, options, "moving_point")
+
+
+def change_point_threshold(nee, ustar, is_night, seasons, *, tair=None, temperature_classes=6,
+                           bins=50, alpha=0.05, edge_bins=3, min_significant_share=0.25,
+                           min_threshold=0.1, min_records_per_bin=3) -> ThresholdEstimate:
+    """u* threshold by change-point detection (Barr et al. 2013), operational model.
+
+    Parameters
+    ----------
+    nee : array_like
+        Net ecosystem exchange, screened [µmol m-2 s-1]; NaN where missing.
+    ustar : array_like
+        Friction velocity [m s-1].
+    is_night : array_like of bool
+        True for night records.
+    seasons : pandas.DataFrame
+        ``year`` and ``season`` of each record, from :func:`assign_seasons`.
+    tair : array_like or None, optional
+        Air temperature [°C]; where given, each season is stratified into
+        `temperature_classes` classes of equal size, otherwise each season is
+        one stratum.
+    temperature_classes : int, optional
+        Temperature strata per season; default 6, our choice (the same
+        stratification as the moving point test; Barr et al. (2013) also
+        stratify by temperature (m)).
+    bins : int, optional
+        u* bins of equal record count per stratum; default 50, Barr et al.
+        (2013) (m).
+    alpha : float, optional
+        Significance level of the F test [1]; default 0.05 (m).
+    edge_bins : int, optional
+        The change point is searched among the bin means ``x_k`` with
+        ``edge_bins <= k < bins - edge_bins`` (0-based), so that each phase
+        has at least `edge_bins` bins; default 3, our choice.
+    min_threshold : float, optional
+        Floor of the reported thresholds [m s-1]; default 0.1 m s-1 (m).
+    min_records_per_bin : int, optional
+        Fewest records per bin; smaller strata are skipped. Default 3, our
+        choice.
+
+    Returns
+    -------
+    ThresholdEstimate
+        Seasonal and annual tables; ``strata`` has one row per year, season
+        and stratum with ``records``, ``change_point`` [m s-1], the fitted
+        ``intercept`` [µmol m-2 s-1], ``slope`` [µmol m-2 s-1 / (m s-1)] and
+        ``plateau`` [µmol m-2 s-1] of the two-phase model, its ``sse``, the
+        single line's ``line_intercept``, ``line_slope`` and ``line_sse``,
+        ``f_max``, ``f_critical`` and ``significant`` (bool).
+
+    Raises
+    ------
+    ConfigError
+        For an invalid setting.
+    FluxpartError
+        If the inputs differ in length.
+
+    Notes
+    -----
+    In each stratum the records are sorted by u* and averaged in `bins` bins
+    of equal count, giving points ``(x_j, y_j)`` (mean u*, mean NEE). For each
+    candidate change point ``c = x_k`` the operational two-phase model of
+    Barr et al. (2013)
+
+        ``y = a + b min(x, c)``
+
+    (NEE linear in u* below ``c`` and constant, ``a + b c``, above it) is fitted
+    by ordinary least squares; the change point is the candidate with the
+    smallest residual sum of squares ``SSE_2``. Its significance is tested
+    against the single line ``y = a + b x`` (``SSE_1``) by
+
+        ``F = (SSE_1 - SSE_2) / (SSE_2 / (n - 3))``,
+
+    maximised over the candidates (``F_max``). ``F_max`` does not follow the
+    F distribution because ``c`` is chosen from the data; its critical value
+    at `alpha` is estimated by Monte Carlo simulation of the null hypothesis,
+    as Lund & Reeves (2002) and Wang (2003) derived their tables, see
+    :func:`change_point_critical_value` (we do not use their tabulated
+    values). A change point counts where ``F_max`` exceeds the critical value
+    and the slope below it is positive (NEE increasing with u*, the
+    signature of flux loss at low turbulence).
+
+    Seasonal threshold: median of the season's significant change points;
+    annual: median of the year's significant change points over all seasons
+    and strata, Barr et al. (2013) (m). Both are raised to `min_threshold`
+    where lower, and NaN with the reason where no change point is
+    significant.
+
+    The regression statistics in ``strata`` are fitted with
+    ``statsmodels.api.OLS`` at the chosen change point; the search over
+    candidates uses the equivalent closed-form least squares in NumPy.
+
+    References
+    ----------
+    Barr, A. G., Richardson, A. D., Hollinger, D. Y. et al. (2013). Use of
+    change-point detection for friction–velocity threshold evaluation in
+    eddy-covariance studies. Agricultural and Forest Meteorology 171–172:31–45.
+    doi:10.1016/j.agrformet.2012.11.023
+
+    Lund, R. & Reeves, J. (2002). Detection of undocumented changepoints: a
+    revision of the two-phase regression model. Journal of Climate
+    15:2547–2554.
+
+    Wang, X. L. (2003). Comments on "Detection of undocumented changepoints: a
+    revision of the two-phase regression model". Journal of Climate
+    16:3383–3385.
+    """
+    options = _change_point_options(temperature_classes if tair is not None else 1, bins, alpha,
+                                    edge_bins, min_significant_share, min_threshold,
+                                    min_records_per_bin)
+    data = _night_data(nee, ustar, tair, is_night, seasons, need_tair=tair is not None)
+    core = _change_point_core(data.nee, data.ustar, data.tair, data.group, data.groups, options,
+                              statistics=True)
+    return _estimate_tables(data, core, options, "change_point")
+
+
+def bootstrap_threshold(nee, ustar, tair, is_night, seasons, *, detector="moving_point",
+                        draws=100, seed=0, **options) -> pd.DataFrame:
+    """Bootstrap distribution of the seasonal and annual u* thresholds.
+
+    Parameters
+    ----------
+    nee, ustar, tair, is_night, seasons
+        As in :func:`moving_point_threshold` (`tair` may be None for the
+        change-point detector without temperature strata).
+    detector : str, optional
+        ``"moving_point"`` (default) or ``"change_point"``.
+    draws : int, optional
+        Number of bootstrap resamples; default 100, Papale et al. (2006) (m).
+    seed : int, optional
+        Seed of ``numpy.random.default_rng``; the same seed gives the same
+        draws.
+    **options
+        Settings of the detector (see its function).
+
+    Returns
+    -------
+    pandas.DataFrame
+        Long format, one row per draw and period: ``draw`` (0-based),
+        ``year``, ``period`` (a season name, or ``"year"`` for the annual
+        threshold) and ``threshold`` [m s-1] (floored; NaN where the draw gave
+        none).
+
+    Raises
+    ------
+    ConfigError
+        For an invalid detector, number of draws, seed or setting.
+
+    Notes
+    -----
+    Each draw resamples, with replacement, the usable night records of each
+    calendar year and season separately (the same number as in the data),
+    and runs the detector on the resample. All draws are taken from one
+    generator in a fixed order, so the result depends only on the data, the
+    settings and `seed`.
+    """
+    options = _detector_options(detector, options, tair is not None)
+    draws = _check_count("draws", draws, minimum=0)
+    seed = _check_count("seed", seed, minimum=0)
+    data = _night_data(nee, ustar, tair, is_night, seasons,
+                       need_tair=detector == "moving_point" or tair is not None)
+    return _bootstrap(data, detector, options, draws, seed)
+
+
+def detect_threshold(index, nee, ustar, tair, is_night, latitude, *, detector="moving_point",
+                     draws=100, seed=0, temperature_classes=6, ustar_classes=20,
+                     plateau_share=0.99, correlation_limit=0.4, min_threshold=0.1,
+                     min_records_per_class=3, bins=50, alpha=0.05, edge_bins=3,
+                     min_significant_share=0.25, min_records_per_bin=3) -> UstarResult:
+    """Detect the u* threshold of each year and season, with its bootstrap spread.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Interval start times in local standard time.
+    nee : array_like
+        Net ecosystem exchange screened for range, site flag and spikes (not
+        yet for u*) [µmol m-2 s-1].
+    ustar : array_like
+        Friction velocity [m s-1].
+    tair : array_like
+        Air temperature [°C].
+    is_night : array_like of bool
+        True for night records.
+    latitude : float
+        Site latitude, north positive [degrees] (selects the season names).
+    detector : str, optional
+        ``"moving_point"`` (default; :func:`moving_point_threshold`) or
+        ``"change_point"`` (:func:`change_point_threshold`, stratified by
+        `tair`).
+    draws : int, optional
+        Bootstrap resamples; default 100, Papale et al. (2006) (m). 0 skips
+        the bootstrap (percentiles NaN).
+    seed : int, optional
+        Seed of the bootstrap.
+    temperature_classes, ustar_classes, plateau_share, correlation_limit, min_threshold, min_records_per_class
+        Settings of :func:`moving_point_threshold` (`temperature_classes` and
+        `min_threshold` are also used by the change-point detector).
+    bins, alpha, edge_bins, min_significant_share, min_records_per_bin
+        Settings of :func:`change_point_threshold`.
+
+    Returns
+    -------
+    UstarResult
+        ``seasonal``, ``annual`` (per year ``threshold`` and
+        ``threshold_p05`` .. ``threshold_p95``, ``draws_valid``, ``detector``),
+        ``bootstrap`` (all draws), ``strata`` and ``settings``.
+
+    Raises
+    ------
+    ConfigError
+        For an invalid setting; TimestampError for a bad index; FluxpartError
+        for inputs of different lengths.
+
+    Notes
+    -----
+    Percentiles are taken over the draws that gave a threshold, with linear
+    interpolation between order statistics (``pandas`` ``quantile``, the same
+    as NumPy's default). The point estimate ``threshold`` is the detector's
+    result on the data themselves, not the bootstrap median.
+    """
+    index = _check_index(index)
+    seasons = assign_seasons(index, latitude)
+    if detector == "moving_point":
+        options = dict(temperature_classes=temperature_classes, ustar_classes=ustar_classes,
+                       plateau_share=plateau_share, correlation_limit=correlation_limit,
+                       min_threshold=min_threshold, min_records_per_class=min_records_per_class)
+        estimate = moving_point_threshold(nee, ustar, tair, is_night, seasons, **options)
+    elif detector == "change_point":
+        options = dict(temperature_classes=temperature_classes, bins=bins, alpha=alpha,
+                       edge_bins=edge_bins, min_significant_share=min_significant_share,
+                       min_threshold=min_threshold, min_records_per_bin=min_records_per_bin)
+        estimate = change_point_threshold(nee, ustar, is_night, seasons, tair=tair, **options)
+    else:
+        raise ConfigError(f"ustar detector = {detector!r}: expected one of "
+                          f"{', '.join(repr(d) for d in DETECTORS)}")
+    draws_table = bootstrap_threshold(nee, ustar, tair, is_night, seasons, detector=detector,
+                                      draws=draws, seed=seed, **options)
+    seasonal_spread = _spread(draws_table[draws_table["period"] != "year"], ["year", "period"])
+    annual_spread = _spread(draws_table[draws_table["period"] == "year"], ["year"])
+
+    seasonal = estimate.seasonal.merge(
+        seasonal_spread.rename(columns={"period": "season"}), on=["year", "season"], how="left")
+    annual = estimate.annual.merge(annual_spread, on="year", how="left")
+    for table in (seasonal, annual):
+        table["draws_valid"] = table["draws_valid"].fillna(0).astype(np.int64)
+    annual["detector"] = detector
+    settings = {"detector": detector, "draws": int(draws), "seed": int(seed),
+                "latitude": float(latitude),
+                "percentiles": list(PERCENTILES),
+                **{key: _plain(value) for key, value in options.items()}}
+    if detector == "change_point":
+        settings["f_critical_simulations"] = _CRITICAL_VALUE_SIMULATIONS
+        settings["f_critical_seed"] = _CRITICAL_VALUE_SEED
+    return UstarResult(seasonal=seasonal, annual=annual, bootstrap=draws_table,
+                       strata=estimate.strata, settings=settings)
+
+
+def change_point_critical_value(bins=50, alpha=0.05, edge_bins=3) -> float:
+    """Critical value of ``F_max`` of the operational two-phase model.
+
+    Parameters
+    ----------
+    bins : int, optional
+        Number of points of the regression [1]; default 50.
+    alpha : float, optional
+        Significance level [1]; default 0.05.
+    edge_bins : int, optional
+        Candidate change points ``x_k``, ``edge_bins <= k < bins - edge_bins``.
+
+    Returns
+    -------
+    float
+        The ``1 - alpha`` quantile of ``F_max`` under the null hypothesis.
+
+    Notes
+    -----
+    Monte Carlo estimate (our own, in the manner of Lund & Reeves 2002 and
+    Wang 2003): 10 000 samples of ``y = e``, ``e`` standard normal, at
+    equally spaced ``x`` (under the null ``F_max`` does not depend on the
+    line's intercept, slope or noise level); for each, ``F_max`` over the
+    same candidates as :func:`change_point_threshold`. The generator has a
+    fixed seed, so the value is the same on every run; its Monte Carlo error
+    at ``alpha = 0.05`` is about 2 %. Equally spaced ``x`` is an
+    approximation for the unequally spaced bin means of u*.
+    """
+    bins = _check_count("bins", bins, minimum=2 * _check_count("edge_bins", edge_bins, 1) + 1)
+    if not _is_number(alpha) or not 0 < alpha < 1:
+        raise ConfigError(f"ustar change-point alpha = {alpha!r}: expected a number in (0, 1)")
+    return _critical_value(int(bins), float(alpha), int(edge_bins))
+
+
+# --------------------------------------------------------------------------- internals
+
+
+@dataclass(frozen=True)
+class _NightData:
+    """Usable night records, sorted by group (year and season)."""
+
+    nee: np.ndarray
+    ustar: np.ndarray
+    tair: np.ndarray
+    group: np.ndarray         # group number of each usable record, non-decreasing
+    groups: pd.DataFrame      # one row per (year, season) of the record: year, season, months
+
+
+def _night_data(nee, ustar, tair, is_night, seasons, *, need_tair) -> _NightData:
+    if not isinstance(seasons, pd.DataFrame) or not {"year", "season"} <= set(seasons.columns):
+        raise FluxpartError("seasons must be a DataFrame with the columns 'year' and 'season', "
+                            "as made by fluxpart.ustar.assign_seasons(index, latitude)")
+    arrays = {"nee": _as_float(nee, "nee"), "ustar": _as_float(ustar, "ustar"),
+              "is_night": _as_bool(is_night, "is_night")}
+    if tair is not None:
+        arrays["tair"] = _as_float(tair, "tair")
+    elif need_tair:
+        raise FluxpartError("the moving point test needs the air temperature 'tair' [°C]")
+    for name, array in arrays.items():
+        if len(array) != len(seasons):
+            raise FluxpartError(f"{name} has {len(array)} values but the record has "
+                                f"{len(seasons)}; give one value per interval")
+    temperature = arrays.get("tair", np.zeros(len(seasons)))
+    usable = (arrays["is_night"] & np.isfinite(arrays["nee"]) & np.isfinite(arrays["ustar"])
+              & np.isfinite(temperature))
+
+    years = np.asarray(seasons["year"], dtype=np.int64)
+    season_position = pd.Categorical(seasons["season"], categories=SEASONS)
+    if np.any(season_position.codes < 0):
+        bad = np.asarray(seasons["season"])[season_position.codes < 0][0]
+        raise FluxpartError(f"season {bad!r} is not one of {', '.join(SEASONS)}")
+    codes = season_position.codes.astype(np.int64)
+    keys = np.unique(years * 4 + codes) if len(years) else np.array([], dtype=np.int64)
+    months = _month_names(seasons)
+    groups = pd.DataFrame({"year": keys // 4, "season": np.asarray(SEASONS)[keys % 4]})
+    groups["months"] = [months.get(season, "") for season in groups["season"]]
+    groups = groups.astype({"season": "str", "months": "str"})
+
+    record_group = np.searchsorted(keys, years * 4 + codes)
+    selected = np.flatnonzero(usable)
+    order = selected[np.argsort(record_group[selected], kind="stable")]
+    return _NightData(nee=arrays["nee"][order], ustar=arrays["ustar"][order],
+                      tair=temperature[order], group=record_group[order], groups=groups)
+
+
+def _month_names(seasons: pd.DataFrame) -> dict:
+    """Season name -> month letters, from the hemisphere the seasons imply."""
+    if not isinstance(seasons.index, pd.DatetimeIndex) or len(seasons) == 0:
+        return dict(_NORTH_MONTHS)
+    months = np.asarray(seasons.index.month)
+    winter = np.asarray(seasons["season"]) == "winter"
+    southern = winter.any() and np.isin(months[winter], (6, 7, 8)).all()
+    return dict(_SOUTH_MONTHS if southern else _NORTH_MONTHS)
+
+
+def _class_positions(values, group, n_groups, classes):
+    """Class (0..classes-1) of each record within its group: equal-size classes by `values`.
+
+    Records are sorted by group, then value (stable, so ties keep record order);
+    class ``floor(rank * classes / size)`` gives sizes that differ by at most one.
+    """
+    order = np.lexsort((values, group))
+    size = np.bincount(group, minlength=n_groups)
+    start = np.concatenate(([0], np.cumsum(size)[:-1]))
+    sorted_group = group[order]
+    rank = np.arange(len(values)) - start[sorted_group]
+    out = np.empty(len(values), dtype=np.int64)
+    out[order] = (rank * classes) // np.maximum(size[sorted_group], 1)
+    return out
+
+
+def _cell_means(values, cell, n_cells):
+    counts = np.bincount(cell, minlength=n_cells).astype(float)
+    sums = np.bincount(cell, weights=values, minlength=n_cells)
+    return sums, counts
+
+
+def _moving_point_core(nee, ustar, tair, group, groups, options):
+    """Moving point test vectorised over groups and classes (see moving_point_threshold)."""
+    n_groups = len(groups)
+    n_t, n_u = options["temperature_classes"], options["ustar_classes"]
+    size = np.bincount(group, minlength=n_groups)
+
+    t_class = _class_positions(tair, group, n_groups, n_t)
+    stratum = group * n_t + t_class
+    u_class = _class_positions(ustar, stratum, n_groups * n_t, n_u)
+    cell = stratum * n_u + u_class
+    n_cells = n_groups * n_t * n_u
+
+    nee_sum, count = _cell_means(nee, cell, n_cells)
+    ustar_sum, _ = _cell_means(ustar, cell, n_cells)
+    shape = (n_groups, n_t, n_u)
+    nee_sum, count, ustar_sum = (a.reshape(shape) for a in (nee_sum, count, ustar_sum))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        class_nee = nee_sum / count
+        class_ustar = ustar_sum / count
+        above_sum = np.cumsum(nee_sum[..., ::-1], axis=-1)[..., ::-1] - nee_sum
+        above_count = np.cumsum(count[..., ::-1], axis=-1)[..., ::-1] - count
+        above_nee = above_sum / above_count
+    testable = (above_count > 0) & (above_nee > 0) & (count > 0)
+    reached = testable & (class_nee >= options["plateau_share"] * above_nee)
+    reached[..., -1] = False
+    plateau_reached = reached.any(axis=-1)
+    first = np.argmax(reached, axis=-1)
+    class_threshold = np.where(plateau_reached,
+                               np.take_along_axis(class_ustar, first[..., None], -1)[..., 0],
+                               np.nan)
+
+    n_strata = n_groups * n_t
+    stratum_count = np.bincount(stratum, minlength=n_strata).astype(float)
+    correlation = _pearson(ustar, tair, stratum, n_strata).reshape(n_groups, n_t)
+    tair_mean = _safe_divide(np.bincount(stratum, weights=tair, minlength=n_strata),
+                             stratum_count).reshape(n_groups, n_t)
+    weak = np.abs(correlation) < options["correlation_limit"]
+    enough = size >= n_t * n_u * options["min_records_per_class"]
+    used = plateau_reached & weak & enough[:, None]
+    seasonal = _row_nanmedian(np.where(used, class_threshold, np.nan))
+
+    reason = np.full(n_groups, "", dtype=object)
+    reason[~used.any(axis=1)] = (f"no temperature class gave a threshold (plateau not reached, "
+                                 f"or |r(u*, T)| >= {options['correlation_limit']:g})")
+    needed = n_t * n_u * options["min_records_per_class"]
+    reason[~enough] = [f"too few night records ({n} of {needed} needed)" for n in size[~enough]]
+    strata = {"records": stratum_count.reshape(n_groups, n_t).astype(np.int64),
+              "tair_mean": tair_mean, "correlation": correlation,
+              "plateau_reached": plateau_reached, "threshold": class_threshold, "used": used}
+    return {"seasonal": seasonal, "used_count": used.sum(axis=1), "size": size,
+            "reason": reason, "strata": strata,
+            "stratum_used": used, "stratum_threshold": class_threshold}
+
+
+def _change_point_core(nee, ustar, tair, group, groups, options, *, statistics):
+    """Change-point detection vectorised over strata (see change_point_threshold)."""
+    n_groups = len(groups)
+    n_t, n_bins, edge = options["temperature_classes"], options["bins"], options["edge_bins"]
+    size = np.bincount(group, minlength=n_groups)
+    t_class = (_class_positions(tair, group, n_groups, n_t) if n_t > 1
+               else np.zeros(len(group), dtype=np.int64))
+    stratum = group * n_t + t_class
+    n_strata = n_groups * n_t
+    stratum_count = np.bincount(stratum, minlength=n_strata)
+    bin_of = _class_positions(ustar, stratum, n_strata, n_bins)
+    cell = stratum * n_bins + bin_of
+    nee_sum, count = _cell_means(nee, cell, n_strata * n_bins)
+    ustar_sum, _ = _cell_means(ustar, cell, n_strata * n_bins)
+    enough = stratum_count >= n_bins * options["min_records_per_bin"]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        x = np.where(enough[:, None], (ustar_sum / count).reshape(n_strata, n_bins), 0.0)
+        y = np.where(enough[:, None], (nee_sum / count).reshape(n_strata, n_bins), 0.0)
+
+    fit = _two_phase_search(x, y, edge)
+    critical = _critical_value(n_bins, options["alpha"], edge)
+    significant = (enough & (fit["f_max"] > critical) & (fit["slope"] > 0)
+                   & (fit["slope_change"] < 0))
+
+    tested = enough.reshape(n_groups, n_t)
+    accepted = significant.reshape(n_groups, n_t)
+    change_point = fit["change_point"].reshape(n_groups, n_t)
+    tested_count = tested.sum(axis=1)
+    used_count = accepted.sum(axis=1)
+    share = options["min_significant_share"]
+    season_ok = (used_count > 0) & (used_count >= share * tested_count)
+    seasonal = np.where(season_ok, _row_nanmedian(np.where(accepted, change_point, np.nan)),
+                        np.nan)
+    reason = np.full(n_groups, "", dtype=object)
+    for row in np.flatnonzero(~season_ok):
+        reason[row] = (f"{used_count[row]} of {tested_count[row]} strata with a significant "
+                       f"change point (alpha = {options['alpha']:g}; at least "
+                       f"{share:.0%} needed)")
+    needed = n_bins * options["min_records_per_bin"]
+    for row in np.flatnonzero(tested_count == 0):
+        reason[row] = f"too few night records: no stratum with {needed} or more"
+    out = {"seasonal": seasonal, "used_count": used_count, "size": size, "reason": reason,
+           "stratum_used": accepted, "stratum_tested": tested, "stratum_threshold": change_point,
+           "min_significant_share": share}
+    if statistics:
+        out["strata"] = _change_point_statistics(x, y, enough, fit, critical, significant,
+                                                 stratum_count, n_groups, n_t)
+    return out
+
+
+def _two_phase_search(x, y, edge, *, operational=True):
+    """Two-phase regressions of y on x at every candidate change point c = x_k.
+
+    Parameters: `x`, `y` of shape (strata, bins), `x` non-decreasing along each
+    row. Closed-form ordinary least squares, vectorised over strata and
+    candidates:
+
+    - operational model ``y = a + b min(x, c)``: the candidate with the least
+      SSE gives ``change_point``, ``intercept``, ``slope`` and ``sse``;
+    - diagnostic model ``y = a + b1 x + b2 max(x - c, 0)``, which contains the
+      single line ``y = a + b x`` (``b2 = 0``): by the Frisch–Waugh theorem its
+      SSE is ``SSE_1 - (w'e)^2 / (w'w)``, with ``e`` the residuals of the line
+      and ``w`` the hinge ``max(x - c, 0)`` residualised on ``[1, x]``.
+      ``F(c) = (SSE_1 - SSE_3(c)) / (SSE_3(c) / (n - 4))``; ``f_max`` is its
+      maximum over the candidates, at ``diagnostic_change_point``, where
+      ``slope_change = b2``.
+    """
+    n_bins = x.shape[-1]
+    rows = np.arange(x.shape[0])
+    candidates = np.arange(edge, n_bins - edge)
+    c = x[:, candidates]                                        # (S, K)
+    y_mean = y.mean(axis=-1)
+    y_centred = y - y_mean[:, None]
+    x_centred = x - x.mean(axis=-1)[:, None]
+    syy = np.einsum("sb,sb->s", y_centred, y_centred)
+    sxx = np.einsum("sb,sb->s", x_centred, x_centred)
+    sxy = np.einsum("sb,sb->s", x_centred, y_centred)
+    out = {}
+    with np.errstate(divide="ignore", invalid="ignore"):
+        if operational:
+            out = _operational_search(x, y_centred, y_mean, syy, c, rows)
+        # single line and diagnostic model
+        line_slope = sxy / sxx
+        line_residual = y_centred - line_slope[:, None] * x_centred
+        line_sse = np.einsum("sb,sb->s", line_residual, line_residual)
+        hinge = np.maximum(x[:, None, :] - c[:, :, None], 0.0)
+        hinge_centred = hinge - hinge.mean(axis=-1)[..., None]
+        hinge_on_x = np.einsum("skb,sb->sk", hinge_centred, x_centred) / sxx[:, None]
+        hinge_residual = hinge_centred - hinge_on_x[..., None] * x_centred[:, None, :]
+        sww = np.einsum("skb,skb->sk", hinge_residual, hinge_residual)
+        swe = np.einsum("skb,sb->sk", hinge_residual, line_residual)
+        gain = np.where(sww > 1e-12 * sxx[:, None], swe**2 / sww, 0.0)
+        diagnostic_sse = line_sse[:, None] - gain
+        f = gain / (diagnostic_sse / (n_bins - 4))
+        f = np.where(np.isfinite(f), f, -np.inf)
+        strongest = np.argmax(f, axis=-1)
+        f_max = f[rows, strongest]
+        slope_change = swe[rows, strongest] / sww[rows, strongest]
+    return {**out, "line_sse": line_sse,
+            "f_max": np.where(np.isfinite(f_max), f_max, np.nan),
+            "diagnostic_change_point": c[rows, strongest],
+            "diagnostic_sse": diagnostic_sse[rows, strongest], "slope_change": slope_change}
+
+
+def _operational_search(x, y_centred, y_mean, syy, c, rows):
+    """Least-squares y = a + b min(x, c) at each candidate; the best per row."""
+    z = np.minimum(x[:, None, :], c[:, :, None])                # (S, K, B)
+    z_mean = z.mean(axis=-1)
+    z_centred = z - z_mean[..., None]
+    szz = np.einsum("skb,skb->sk", z_centred, z_centred)
+    szy = np.einsum("skb,sb->sk", z_centred, y_centred)
+    sse = np.where(szz > 0, syy[:, None] - szy**2 / szz, np.inf)
+    best = np.argmin(sse, axis=-1)
+    slope = szy[rows, best] / szz[rows, best]
+    intercept = y_mean - slope * z_mean[rows, best]
+    return {"change_point": c[rows, best], "intercept": intercept, "slope": slope,
+            "sse": sse[rows, best]}
+
+
+@functools.lru_cache(maxsize=32)
+def _critical_value(n_bins: int, alpha: float, edge: int) -> float:
+    rng = np.random.default_rng(_CRITICAL_VALUE_SEED)
+    x = np.arange(n_bins, dtype=float)
+    chunks = []
+    remaining = _CRITICAL_VALUE_SIMULATIONS
+    while remaining > 0:
+        rows = min(remaining, 2000)
+        y = rng.standard_normal((rows, n_bins))
+        chunks.append(_two_phase_search(np.broadcast_to(x, y.shape), y, edge,
+                                        operational=False)["f_max"])
+        remaining -= rows
+    return float(np.quantile(np.concatenate(chunks), 1.0 - alpha))
+
+
+def _change_point_statistics(x, y, enough, fit, critical, significant, stratum_count,
+                             n_groups, n_t):
+    """Regression statistics of each stratum at its chosen change points (statsmodels OLS)."""
+    n_strata = x.shape[0]
+    names = ("intercept", "slope", "plateau", "sse", "line_intercept", "line_slope", "line_sse",
+             "slope_change", "diagnostic_sse")
+    stats = {name: np.full(n_strata, np.nan) for name in names}
+    for row in np.flatnonzero(enough):
+        change_point = fit["change_point"][row]
+        operational = sm.OLS(y[row], sm.add_constant(np.minimum(x[row], change_point),
+                                                     has_constant="add")).fit()
+        line = sm.OLS(y[row], sm.add_constant(x[row], has_constant="add")).fit()
+        hinge = np.maximum(x[row] - fit["diagnostic_change_point"][row], 0.0)
+        diagnostic = sm.OLS(y[row], sm.add_constant(np.column_stack((x[row], hinge)),
+                                                    has_constant="add")).fit()
+        stats["intercept"][row], stats["slope"][row] = operational.params
+        stats["plateau"][row] = operational.params[0] + operational.params[1] * change_point
+        stats["sse"][row] = operational.ssr
+        stats["line_intercept"][row], stats["line_slope"][row] = line.params
+        stats["line_sse"][row] = line.ssr
+        stats["slope_change"][row] = diagnostic.params[2]
+        stats["diagnostic_sse"][row] = diagnostic.ssr
+    table = {"records": stratum_count.astype(np.int64),
+             "change_point": np.where(enough, fit["change_point"], np.nan),
+             **{k: stats[k] for k in names[:7]},
+             "diagnostic_change_point": np.where(enough, fit["diagnostic_change_point"], np.nan),
+             "slope_change": stats["slope_change"], "diagnostic_sse": stats["diagnostic_sse"],
+             "f_max": np.where(enough, fit["f_max"], np.nan),
+             "f_critical": np.full(n_strata, critical), "significant": significant}
+    return {key: np.asarray(value).reshape(n_groups, n_t) for key, value in table.items()}
+
+
+def _estimate_tables(data: _NightData, core, options, detector) -> ThresholdEstimate:
+    groups = data.groups
+    floor = options["min_threshold"]
+    seasonal = groups.assign(
+        night_records=core["size"].astype(np.int64),
+        temperature_classes_used=core["used_count"].astype(np.int64),
+        threshold_detected=core["seasonal"],
+        threshold=_floored(core["seasonal"], floor),
+        reason=pd.array(core["reason"], dtype="str"))
+
+    annual = _annual(groups, core, detector, floor)
+    n_t = options["temperature_classes"]
+    strata = pd.DataFrame({
+        "year": np.repeat(groups["year"].to_numpy(), n_t),
+        "season": np.repeat(groups["season"].to_numpy(), n_t),
+        "temperature_class": np.tile(np.arange(n_t, dtype=np.int64), len(groups)),
+        **{key: np.asarray(value).reshape(-1) for key, value in core["strata"].items()}})
+    return ThresholdEstimate(seasonal=seasonal, annual=annual,
+                             strata=strata.astype({"season": "str"}))
+
+
+def _annual(groups, core, detector, floor) -> pd.DataFrame:
+    """Annual thresholds: max of seasons (moving point) or median of strata (change point)."""
+    years = groups["year"].to_numpy()
+    unique_years, year_of_group = np.unique(years, return_inverse=True)
+    n_years = len(unique_years)
+    seasonal = core["seasonal"]
+    has = np.isfinite(seasonal)
+    seasons_used = np.bincount(year_of_group, weights=has, minlength=n_years).astype(np.int64)
+    records = np.bincount(year_of_group, weights=core["size"], minlength=n_years).astype(np.int64)
+    if detector == "moving_point":
+        detected = np.full(n_years, -np.inf)
+        np.maximum.at(detected, year_of_group[has], seasonal[has])
+        detected[np.isneginf(detected)] = np.nan
+    else:
+        values = np.where(core["stratum_used"], core["stratum_threshold"], np.nan)
+        detected = np.array([_median_or_nan(values[year_of_group == y].ravel())
+                             for y in range(n_years)])
+        accepted = np.bincount(year_of_group, weights=core["stratum_used"].sum(axis=1),
+                               minlength=n_years)
+        tested = np.bincount(year_of_group, weights=core["stratum_tested"].sum(axis=1),
+                             minlength=n_years)
+        detected = np.where((accepted > 0) & (accepted >= core["min_significant_share"] * tested),
+                            detected, np.nan)
+    reason = np.full(n_years, "", dtype=object)
+    season_names = groups["season"].to_numpy()
+    for y in range(n_years):
+        if records[y] == 0:
+            reason[y] = "no usable night records (night, with NEE, u* and temperature)"
+        elif np.isnan(detected[y]) and detector == "moving_point":
+            reason[y] = "no season of the year gave a threshold"
+        elif np.isnan(detected[y]):
+            reason[y] = (f"{int(accepted[y])} of {int(tested[y])} strata with a significant "
+                         f"change point (at least {core['min_significant_share']:.0%} needed)")
+        elif detector == "moving_point" and seasons_used[y] < 4:
+            found = set(season_names[(year_of_group == y) & has])
+            absent = [season for season in SEASONS if season not in found]
+            reason[y] = f"from {seasons_used[y]} of 4 seasons (none in: {', '.join(absent)})"
+    return pd.DataFrame({"year": unique_years.astype(np.int64), "night_records": records,
+                         "seasons_used": seasons_used, "threshold_detected": detected,
+                         "threshold": _floored(detected, floor),
+                         "reason": pd.array(reason, dtype="str")})
+
+
+def _bootstrap(data: _NightData, detector, options, draws, seed) -> pd.DataFrame:
+    groups = data.groups
+    n_groups = len(groups)
+    size = np.bincount(data.group, minlength=n_groups)
+    start = np.concatenate(([0], np.cumsum(size)[:-1]))
+    n = len(data.group)
+    rng = np.random.default_rng(seed)
+    rows = []
+    for first in range(0, draws, _DRAWS_PER_CHUNK):
+        chunk = min(_DRAWS_PER_CHUNK, draws - first)
+        uniform = rng.random((chunk, n))
+        picked = start[data.group] + np.minimum((uniform * size[data.group]).astype(np.int64),
+                                                size[data.group] - 1)
+        picked = picked.ravel()
+        group = (np.arange(chunk)[:, None] * n_groups + data.group[None, :]).ravel()
+        resampled = _NightData(nee=data.nee[picked], ustar=data.ustar[picked],
+                               tair=data.tair[picked], group=group,
+                               groups=pd.concat([groups] * chunk, ignore_index=True))
+        if detector == "moving_point":
+            core = _moving_point_core(resampled.nee, resampled.ustar, resampled.tair, group,
+                                      resampled.groups, options)
+        else:
+            core = _change_point_core(resampled.nee, resampled.ustar, resampled.tair, group,
+                                      resampled.groups, options, statistics=False)
+        floor = options["min_threshold"]
+        seasonal = _floored(core["seasonal"], floor).reshape(chunk, n_groups)
+        for offset in range(chunk):
+            part = slice(offset * n_groups, (offset + 1) * n_groups)
+            sub = {key: (value[part] if isinstance(value, np.ndarray) else value)
+                   for key, value in core.items() if key != "strata"}
+            annual = _annual(groups, sub, detector, floor)
+            draw = first + offset
+            rows.append(pd.DataFrame({"draw": draw, "year": groups["year"].to_numpy(),
+                                      "period": groups["season"].to_numpy(),
+                                      "threshold": seasonal[offset]}))
+            rows.append(pd.DataFrame({"draw": draw, "year": annual["year"].to_numpy(),
+                                      "period": "year", "threshold": annual["threshold"]}))
+    if not rows:
+        return pd.DataFrame({"draw": pd.Series(dtype=np.int64), "year": pd.Series(dtype=np.int64),
+                             "period": pd.Series(dtype="str"),
+                             "threshold": pd.Series(dtype=float)})
+    table = pd.concat(rows, ignore_index=True)
+    rank = table["period"].map({"year": 0, **{s: i + 1 for i, s in enumerate(SEASONS)}})
+    table = (table.assign(_rank=rank).sort_values(["draw", "year", "_rank"], kind="stable")
+             .drop(columns="_rank").reset_index(drop=True))
+    return table.astype({"draw": np.int64, "year": np.int64, "period": "str",
+                         "threshold": float})
+
+
+def _spread(draws: pd.DataFrame, keys) -> pd.DataFrame:
+    """Bootstrap percentiles and the number of valid draws per key."""
+    columns = _percentile_columns()
+    if draws.empty:
+        return pd.DataFrame({**{k: pd.Series(dtype=np.int64 if k == "year" else "str")
+                                for k in keys},
+                             **{c: pd.Series(dtype=float) for c in columns},
+                             "draws_valid": pd.Series(dtype=np.int64)})
+    grouped = draws.groupby(keys, sort=True)["threshold"]
+    quantiles = grouped.quantile([p / 100 for p in PERCENTILES]).unstack()
+    quantiles.columns = columns
+    quantiles["draws_valid"] = grouped.count().astype(np.int64)
+    return quantiles.reset_index()
+
+
+def _percentile_columns():
+    return [f"threshold_p{p:02d}" for p in PERCENTILES]
+
+
+def _pearson(x, y, group, n_groups):
+    """Pearson correlation of x and y within each group (NaN where undefined)."""
+    count = np.bincount(group, minlength=n_groups).astype(float)
+    mean_x = _safe_divide(np.bincount(group, weights=x, minlength=n_groups), count)
+    mean_y = _safe_divide(np.bincount(group, weights=y, minlength=n_groups), count)
+    dx = x - mean_x[group]
+    dy = y - mean_y[group]
+    sxx = np.bincount(group, weights=dx * dx, minlength=n_groups)
+    syy = np.bincount(group, weights=dy * dy, minlength=n_groups)
+    sxy = np.bincount(group, weights=dx * dy, minlength=n_groups)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        r = sxy / np.sqrt(sxx * syy)
+    return np.where((sxx > 0) & (syy > 0), r, np.nan)
+
+
+def _safe_divide(numerator, denominator):
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(denominator > 0, numerator / denominator, np.nan)
+
+
+def _row_nanmedian(values):
+    """Median of each row ignoring NaN; NaN for rows without values (no warning)."""
+    values = np.sort(values, axis=-1)                      # NaN sorts last
+    count = np.isfinite(values).sum(axis=-1)
+    low = np.take_along_axis(values, np.maximum((count - 1) // 2, 0)[:, None], -1)[:, 0]
+    high = np.take_along_axis(values, (count // 2)[:, None], -1)[:, 0]
+    return np.where(count > 0, (low + high) / 2.0, np.nan)
+
+
+def _median_or_nan(values):
+    values = values[np.isfinite(values)]
+    return float(np.median(values)) if len(values) else np.nan
+
+
+def _floored(values, floor):
+    values = np.asarray(values, dtype=float)
+    return np.where(np.isfinite(values), np.maximum(values, floor), np.nan)
+
+
+def _moving_point_options(temperature_classes, ustar_classes, plateau_share, correlation_limit,
+                          min_threshold, min_records_per_class):
+    options = {
+        "temperature_classes": _check_count("temperature_classes", temperature_classes, 1),
+        "ustar_classes": _check_count("ustar_classes", ustar_classes, 2),
+        "plateau_share": _check_share("plateau_share", plateau_share),
+        "correlation_limit": _check_share("correlation_limit", correlation_limit),
+        "min_threshold": _check_non_negative("min_threshold", min_threshold),
+        "min_records_per_class": _check_count("min_records_per_class", min_records_per_class, 1),
+    }
+    return options
+
+
+def _change_point_options(temperature_classes, bins, alpha, edge_bins, min_significant_share,
+                          min_threshold, min_records_per_bin):
+    edge_bins = _check_count("edge_bins", edge_bins, 1)
+    options = {
+        "temperature_classes": _check_count("temperature_classes", temperature_classes, 1),
+        "bins": _check_count("bins", bins, 2 * edge_bins + 4),
+        "alpha": _check_share("alpha", alpha, closed=False),
+        "edge_bins": edge_bins,
+        "min_significant_share": _check_share("min_significant_share", min_significant_share),
+        "min_threshold": _check_non_negative("min_threshold", min_threshold),
+        "min_records_per_bin": _check_count("min_records_per_bin", min_records_per_bin, 1),
+    }
+    return options
+
+
+def _detector_options(detector, options, has_tair):
+    if detector == "moving_point":
+        builder, valid = _moving_point_options, ("temperature_classes", "ustar_classes",
+                                                 "plateau_share", "correlation_limit",
+                                                 "min_threshold", "min_records_per_class")
+        defaults = dict(temperature_classes=6, ustar_classes=20, plateau_share=0.99,
+                        correlation_limit=0.4, min_threshold=0.1, min_records_per_class=3)
+    elif detector == "change_point":
+        builder, valid = _change_point_options, ("temperature_classes", "bins", "alpha",
+                                                 "edge_bins", "min_significant_share",
+                                                 "min_threshold", "min_records_per_bin")
+        defaults = dict(temperature_classes=6, bins=50, alpha=0.05, edge_bins=3,
+                        min_significant_share=0.25, min_threshold=0.1, min_records_per_bin=3)
+    else:
+        raise ConfigError(f"ustar detector = {detector!r}: expected one of "
+                          f"{', '.join(repr(d) for d in DETECTORS)}")
+    unknown = sorted(set(options) - set(valid))
+    if unknown:
+        raise ConfigError(f"ustar {detector} setting {unknown[0]!r} is unknown; valid settings: "
+                          f"{', '.join(valid)}")
+    merged = {**defaults, **options}
+    if detector == "change_point" and not has_tair:
+        merged["temperature_classes"] = 1
+    return builder(**merged)
+
+
+def _is_number(value) -> bool:
+    return isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(value, bool)
+
+
+def _check_count(name, value, minimum):
+    if not isinstance(value, (int, np.integer)) or isinstance(value, bool) or value < minimum:
+        raise ConfigError(f"ustar {name} = {value!r}: expected a whole number >= {minimum}")
+    return int(value)
+
+
+def _check_share(name, value, closed=True):
+    upper_ok = (value <= 1) if closed else (value < 1)
+    if not _is_number(value) or not (value > 0 and upper_ok):
+        interval = "(0, 1]" if closed else "(0, 1)"
+        raise ConfigError(f"ustar {name} = {value!r}: expected a number in {interval}")
+    return float(value)
+
+
+def _check_non_negative(name, value):
+    if not _is_number(value) or not value >= 0:
+        raise ConfigError(f"ustar {name} = {value!r}: expected a number >= 0 [m s-1]")
+    return float(value)
+
+
+def _plain(value):
+    return value.item() if isinstance(value, np.generic) else value
+
+
+def _as_float(values, name):
+    try:
+        return np.array(values, dtype=float)
+    except (TypeError, ValueError):
+        raise FluxpartError(f"column {name!r} must hold numbers") from None
+
+
+def _as_bool(values, name):
+    array = np.asarray(values)
+    if array.dtype != bool:
+        if array.dtype.kind not in "iuf" or np.any(~np.isin(array, (0, 1))):
+            raise FluxpartError(f"{name} must be boolean (True/False for every record, no "
+                                "missing values)")
+        array = array.astype(bool)
+    return array.copy()
+
+
+def _check_index(index) -> pd.DatetimeIndex:
+    if not isinstance(index, pd.DatetimeIndex):
+        raise TimestampError(f"the time axis must be a pandas DatetimeIndex of interval starts; "
+                             f"found {type(index).__name__}")
+    return index

@@ -1,0 +1,300 @@
+"""Tests of fluxpart.partition.daytime: light-response partitioning (Lasslop et al. 2010)."""
+
+import numpy as np
+import pandas as pd
+import pytest
+import scipy
+from conftest import load_reference
+from scipy.optimize import curve_fit
+
+from fluxpart.errors import (
+    ConfigError,
+    FluxpartError,
+    ImplausibleValueError,
+    InsufficientDataError,
+    NonMonotonicTimestampError,
+)
+from fluxpart.partition.daytime import PARAMETER_COLUMNS, DaytimeResult, partition_daytime
+from fluxpart.responses import light_response, lloyd_taylor
+
+REFERENCE = load_reference("light_response")
+E0_TRUE = 180.0  # K, planted value for known-truth recovery (invented)
+
+
+def _synthetic_record(seed, *, freq="30min", days=365, start="2023-01-01", south=False,
+                      c4=False, gap_fraction=0.4, noise=1.0, max_vpd=None):
+    """Invented site record with planted α, β0, k, Rref, E0 (known-truth recovery only).
+
+    Drivers follow a seasonal and diurnal course; noise is Laplace-distributed with a
+    standard deviation growing with the flux (Richardson et al. 2006, Agric. For.
+    Meteorol. 136:1–18: flux random error is Laplace-like and scales with |NEE|).
+    """
+    rng = np.random.default_rng(seed)
+    step_hours = pd.Timedelta(freq) / pd.Timedelta(hours=1)
+    index = pd.date_range(start, periods=int(round(days * 24 / step_hours)), freq=freq)
+    days_elapsed = np.asarray((index - index[0]) / pd.Timedelta(days=1))
+    hour = (days_elapsed % 1.0) * 24 + step_hours / 2
+    day_of_year = index.day_of_year.to_numpy()
+    phase = np.cos(2 * np.pi * (day_of_year - 172) / 365.0) * (-1 if south else 1)
+    daylength = 12 + 4 * phase
+    sun = np.clip(np.cos(np.pi * (hour - 12) / daylength), 0, None)
+    sun = sun * (np.abs(hour - 12) < daylength / 2)
+    cloud = rng.uniform(0.3, 1.0, size=int(days_elapsed[-1]) + 1)[days_elapsed.astype(int)]
+    rg = (500 + 200 * (phase + 1)) * sun * cloud
+    tair = 10 + 10 * phase + 5 * np.sin(2 * np.pi * (hour - 9) / 24) + rng.normal(0, 1, len(rg))
+    saturation = 6.1078 * np.exp(17.27 * tair / (tair + 237.3))
+    rh = np.clip(75 - 25 * np.sin(2 * np.pi * (hour - 9) / 24) - 5 * (phase + 1), 15, 100)
+    vpd = saturation * (1 - rh / 100)
+    if max_vpd is not None:
+        vpd = np.minimum(vpd, max_vpd)
+    growth = np.clip((phase + 0.3) / 1.3, 0, None)
+    alpha = (0.02 + 0.05 * growth) if c4 else (0.01 + 0.04 * growth)
+    beta0 = (50 + 400 * growth) if c4 else (5 + 30 * growth)
+    k = 0.04
+    rref = 1.5 + 2.0 * growth
+    e0 = np.full(len(rg), E0_TRUE)
+    gpp = light_response(rg, vpd, alpha, beta0, k)
+    reco = lloyd_taylor(tair, rref, e0)
+    scale = noise * (0.6 + 0.15 * np.abs(reco - gpp))
+    nee = reco - gpp + rng.laplace(0, scale / np.sqrt(2))
+    nee[rng.uniform(size=len(rg)) < gap_fraction] = np.nan
+    return {"index": index, "nee_measured": nee, "rg": rg, "vpd": vpd, "temperature": tair,
+            "is_night": rg < 10, "e0": e0, "gpp_true": gpp, "reco_true": reco,
+            "alpha_true": alpha, "beta0_true": beta0, "rref_true": rref}
+
+
+def _inputs(record):
+    keys = ("index", "nee_measured", "rg", "vpd", "temperature", "is_night", "e0")
+    return {key: record[key] for key in keys}
+
+
+@pytest.fixture(scope="module")
+def season():
+    """One invented half-hourly site-year and its daytime partitioning with defaults."""
+    record = _synthetic_record(1)
+    return record, partition_daytime(**_inputs(record))
+
+
+def test_result_shape_and_columns(season):
+    """Per-record arrays, one parameter row per 2-day step, the documented columns."""
+    record, result = season
+    assert isinstance(result, DaytimeResult)
+    assert result.gpp.shape == result.reco.shape == (len(record["index"]),)
+    assert tuple(result.parameters.columns) == PARAMETER_COLUMNS
+    assert len(result.parameters) == 182      # 365 days in 4-day windows moved by 2 days
+    windows = result.parameters
+    span = (windows.window_end - windows.window_start) / pd.Timedelta(days=1)
+    assert np.all(span == REFERENCE["windows"]["window_days"])
+    step = np.diff(windows.window_start.to_numpy()) / np.timedelta64(1, "D")
+    assert np.all(step == REFERENCE["windows"]["window_step_days"])
+    assert windows.accepted.dtype == bool and windows.k_fixed.dtype == bool
+
+
+def test_known_truth_annual_gpp_within_10_percent(season):
+    """Invented season with planted parameters: annual GPP and Reco recovered within 10 %."""
+    record, result = season
+    assert np.nansum(result.gpp) == pytest.approx(np.sum(record["gpp_true"]), rel=0.10)
+    assert np.nansum(result.reco) == pytest.approx(np.sum(record["reco_true"]), rel=0.10)
+    assert result.parameters.accepted.mean() > 0.8
+
+
+def test_alpha_within_published_bounds(season):
+    """Every fitted α lies in [0, 0.22] µmol J-1, Lasslop et al. (2010) (m)."""
+    _, result = season
+    bounds = REFERENCE["bounds"]
+    alpha = result.parameters.alpha.dropna()
+    assert alpha.between(bounds["alpha_low"], bounds["alpha_high"]).all()
+    accepted = result.parameters[result.parameters.accepted]
+    assert (accepted.alpha < bounds["alpha_high"]).all()
+    assert (accepted.beta0 <= bounds["beta0_high"]).all()
+    assert (accepted.k >= bounds["k_low"]).all() and (accepted.rref > bounds["rref_low"]).all()
+
+
+def test_gpp_zero_at_night_and_reco_at_window_centre(season):
+    """GPP is 0 where Rg ≤ 0; at an accepted centre Reco uses that window's Rref exactly."""
+    record, result = season
+    assert np.all(result.gpp[record["rg"] <= 0] == 0.0)
+    windows = result.parameters
+    row = windows[windows.accepted].iloc[40]
+    at = np.flatnonzero(record["index"] == row.window_centre)[0]
+    expected = lloyd_taylor(record["temperature"][at], row.rref, E0_TRUE)
+    assert result.reco[at] == pytest.approx(float(expected), rel=1e-12)
+
+
+def test_one_window_agrees_with_scipy_curve_fit():
+    """One 4-day window: parameters and errors equal SciPy's on the same model and data.
+
+    Reference: scipy.optimize.curve_fit (SciPy version printed on failure), bounded
+    trust-region fit ``method="trf"`` with tight tolerances; its covariance is
+    (J^T J)^-1 s² (absolute_sigma=False). Tolerance: 0.02 standard errors for the
+    estimates (our iteration stops when the remaining step is below 0.01 standard
+    errors; SciPy's tolerances are tighter), 1 % for the errors (same Jacobian, same
+    residual variance, evaluated at optima that differ by that step).
+    """
+    record = _synthetic_record(7, days=4, start="2023-06-10", gap_fraction=0.2)
+    result = partition_daytime(**_inputs(record))
+    row = result.parameters.iloc[0]
+    assert row.accepted and not row.k_fixed
+    use = (~record["is_night"] & np.isfinite(record["nee_measured"]) & (record["rg"] > 0))
+    drivers = np.vstack([record["rg"][use], record["vpd"][use], record["temperature"][use]])
+
+    def model(x, alpha, beta0, k, rref):
+        return lloyd_taylor(x[2], rref, E0_TRUE) - light_response(x[0], x[1], alpha, beta0, k)
+
+    bounds = REFERENCE["bounds"]
+    estimate, covariance = curve_fit(
+        model, drivers, record["nee_measured"][use], p0=[0.01, 20.0, 0.0, 2.0],
+        bounds=([bounds["alpha_low"], 0.0, 0.0, 0.0],
+                [bounds["alpha_high"], bounds["beta0_high"], np.inf, np.inf]),
+        method="trf", ftol=1e-14, xtol=1e-14, gtol=1e-14, max_nfev=10_000)
+    reference_se = np.sqrt(np.diag(covariance))
+    ours = row[["alpha", "beta0", "k", "rref"]].to_numpy(dtype=float)
+    ours_se = row[["alpha_se", "beta0_se", "k_se", "rref_se"]].to_numpy(dtype=float)
+    message = f"scipy {scipy.__version__}: {estimate} ± {reference_se}; ours {ours} ± {ours_se}"
+    assert np.all(np.abs(ours - estimate) <= 0.02 * reference_se), message
+    np.testing.assert_allclose(ours_se, reference_se, rtol=0.01, err_msg=message)
+
+
+def test_c4_like_canopy_fitted_with_gpp_within_15_percent():
+    """Very large β (C4-like, barely saturating): windows still fitted, GPP within 15 %."""
+    record = _synthetic_record(3, c4=True)
+    result = partition_daytime(**_inputs(record))
+    windows = result.parameters
+    assert windows.accepted.mean() > 0.8
+    assert (windows.reason == "beta0 at upper bound").any()
+    assert windows.beta0.max() <= REFERENCE["bounds"]["beta0_high"]
+    assert np.nansum(result.gpp) == pytest.approx(np.sum(record["gpp_true"]), rel=0.15)
+
+
+def test_hourly_record_recovers_gpp():
+    """Hourly data: the same windows in days, GPP within 10 % of the planted truth."""
+    record = _synthetic_record(4, freq="60min")
+    result = partition_daytime(**_inputs(record))
+    assert len(result.parameters) == 182
+    assert np.nansum(result.gpp) == pytest.approx(np.sum(record["gpp_true"]), rel=0.10)
+
+
+def test_night_records_in_fit_constrain_rref():
+    """night_in_fit=True: night NEE joins the fit; hourly Reco then within 5 % of the truth."""
+    record = _synthetic_record(4, freq="60min")
+    default = partition_daytime(**_inputs(record))
+    with_night = partition_daytime(**_inputs(record), night_in_fit=True)
+    assert (with_night.parameters.night_points > 0).all()
+    assert not np.allclose(with_night.parameters.rref, default.parameters.rref)
+    truth = np.sum(record["reco_true"])
+    assert np.nansum(with_night.reco) == pytest.approx(truth, rel=0.05)
+    assert np.nansum(with_night.gpp) == pytest.approx(np.sum(record["gpp_true"]), rel=0.05)
+    # The windows' sampling errors shrink when the night records add information.
+    assert (with_night.parameters.rref_se.median() < default.parameters.rref_se.median())
+
+
+def test_southern_hemisphere_two_years():
+    """Two southern-hemisphere years starting mid-year: nothing seasonal is assumed."""
+    record = _synthetic_record(5, south=True, start="2023-07-01", days=731)
+    result = partition_daytime(**_inputs(record))
+    assert result.parameters.window_start.iloc[0] == pd.Timestamp("2023-07-01")
+    assert result.parameters.window_end.iloc[-1] >= record["index"][-1]
+    for year in (2024, 2025):
+        in_year = record["index"].year == year
+        assert np.nansum(result.gpp[in_year]) == pytest.approx(
+            np.sum(record["gpp_true"][in_year]), rel=0.10)
+
+
+def test_windows_with_too_few_points_rejected():
+    """Windows with fewer measured daytime records than min_points are rejected, NaN parameters."""
+    record = _synthetic_record(6, days=60, start="2023-05-01")
+    days = np.asarray((record["index"] - record["index"][0]) / pd.Timedelta(days=1))
+    nee = record["nee_measured"].copy()
+    nee[(days >= 20) & (days < 34)] = np.nan            # two weeks without data
+    sparse = (days >= 34) & (days < 38)
+    nee[sparse & (np.arange(len(nee)) % 40 != 0)] = np.nan   # then a handful of records
+    result = partition_daytime(**dict(_inputs(record), nee_measured=nee))
+    windows = result.parameters
+    starts = (windows.window_start - record["index"][0]) / pd.Timedelta(days=1)
+    empty = windows[(starts >= 20) & (starts <= 30)]
+    assert len(empty) >= 5
+    assert (empty.points < 10).all()
+    assert (~empty.accepted).all() and (empty.reason == "too few points").all()
+    assert empty[["alpha", "beta0", "k", "rref"]].isna().all().all()
+    assert np.isfinite(result.gpp).all()                 # filled from neighbouring windows
+
+
+def test_k_fixed_at_zero_when_vpd_never_exceeds_vpd0():
+    """VPD ≤ 10 hPa everywhere: k is not identifiable and fixed at 0 (Lasslop et al. 2010 (m))."""
+    record = _synthetic_record(8, days=40, start="2023-06-01", max_vpd=9.5)
+    result = partition_daytime(**_inputs(record))
+    windows = result.parameters
+    assert windows.k_fixed.all()
+    assert (windows.k == 0.0).all()
+    assert windows.k_se.isna().all()
+
+
+def test_k_fitted_when_vpd_is_high(season):
+    """Summer windows with high VPD fit k > 0 with a finite standard error."""
+    _, result = season
+    free = result.parameters[~result.parameters.k_fixed & result.parameters.accepted]
+    assert len(free) > 10
+    assert (free.k > 0).all() and np.isfinite(free.k_se).all()
+
+
+def test_inputs_not_modified():
+    """The input arrays and index are left untouched."""
+    record = _synthetic_record(9, days=20)
+    inputs = _inputs(record)
+    copies = {key: value.copy() for key, value in inputs.items()}
+    partition_daytime(**inputs)
+    for key, value in inputs.items():
+        if isinstance(value, pd.Index):
+            assert value.equals(copies[key])
+        else:
+            np.testing.assert_array_equal(value, copies[key])
+
+
+def test_deterministic():
+    """Same input gives identical results, bit for bit."""
+    record = _synthetic_record(10, days=30)
+    first = partition_daytime(**_inputs(record))
+    second = partition_daytime(**_inputs(record))
+    assert first.gpp.tobytes() == second.gpp.tobytes()
+    assert first.reco.tobytes() == second.reco.tobytes()
+    pd.testing.assert_frame_equal(first.parameters, second.parameters)
+
+
+def test_accepts_series_inputs():
+    """pandas Series aligned with the index work like arrays."""
+    record = _synthetic_record(11, days=12)
+    inputs = _inputs(record)
+    as_series = {key: (pd.Series(value, index=record["index"]) if key != "index" else value)
+                 for key, value in inputs.items()}
+    np.testing.assert_array_equal(partition_daytime(**as_series).gpp,
+                                  partition_daytime(**inputs).gpp)
+
+
+def test_bad_inputs_raise_clear_errors():
+    """Misaligned arrays, bad E0, non-boolean night flags and bad settings are named."""
+    record = _synthetic_record(12, days=8)
+    inputs = _inputs(record)
+    with pytest.raises(FluxpartError, match="vpd"):
+        partition_daytime(**dict(inputs, vpd=record["vpd"][:-1]))
+    bad_e0 = record["e0"].copy()
+    bad_e0[5] = np.nan
+    with pytest.raises(ImplausibleValueError, match="e0.*row 5"):
+        partition_daytime(**dict(inputs, e0=bad_e0))
+    with pytest.raises(ImplausibleValueError, match="is_night"):
+        partition_daytime(**dict(inputs, is_night=record["is_night"].astype(float)))
+    with pytest.raises(ConfigError, match="window_days"):
+        partition_daytime(**inputs, window_days=0)
+    with pytest.raises(ConfigError, match="alpha_bounds"):
+        partition_daytime(**inputs, alpha_bounds=(0.3, 0.1))
+    with pytest.raises(ConfigError, match="min_points"):
+        partition_daytime(**inputs, min_points=2)
+    with pytest.raises(NonMonotonicTimestampError, match="row"):
+        partition_daytime(**dict(inputs, index=record["index"][::-1]))
+
+
+def test_no_daytime_data_is_insufficient():
+    """A record without measured daytime NEE raises InsufficientDataError."""
+    record = _synthetic_record(13, days=8)
+    nee = np.where(record["is_night"], record["nee_measured"], np.nan)
+    with pytest.raises(InsufficientDataError, match="too few points"):
+        partition_daytime(**dict(_inputs(record), nee_measured=nee))

@@ -1,0 +1,789 @@
+"""Tests of fluxpart.io (site TOML and record reader) and fluxpart.coverage.
+
+The CSV files are invented here with known content (known-truth recovery tests of
+the reader); outside reference values come from reference/units.toml.
+"""
+
+import hashlib
+
+import numpy as np
+import pandas as pd
+import pytest
+from conftest import load_reference
+
+from fluxpart import Site
+from fluxpart.coverage import COVERAGE_COLUMNS, coverage_table, format_check
+from fluxpart.errors import (
+    ConfigError,
+    DuplicateTimestampError,
+    FluxpartError,
+    ImplausibleValueError,
+    InputFileError,
+    MissingColumnError,
+    NonMonotonicTimestampError,
+    SpacingError,
+    TimestampError,
+    UnitError,
+)
+from fluxpart.io import (
+    IMPLAUSIBLE_SHARE,
+    ReadReport,
+    SiteConfig,
+    read_config,
+    read_input,
+    read_site_config,
+    read_table,
+)
+from fluxpart.variables import vpd_from_rh
+
+UNITS = load_reference("units")
+FORMAT = "%Y-%m-%d %H:%M"
+MAPPING = {"nee": "co2_flux", "rg": "sw_in", "tair": "t_air", "vpd": "vpd_air",
+           "ustar": "u_fric"}
+
+
+def _records(periods=96, start="2021-06-01 00:00", minutes=30, seed=1):
+    """Invented tower records on interval starts, file column names of MAPPING."""
+    rng = np.random.default_rng(seed)
+    starts = pd.date_range(start, periods=periods, freq=f"{minutes}min")
+    hour = starts.hour + starts.minute / 60
+    daylight = np.clip(np.sin((hour - 6) / 12 * np.pi), 0, None)
+    return pd.DataFrame({
+        "co2_flux": np.round(3 - 15 * daylight + rng.normal(0, 1.5, periods), 3),
+        "sw_in": np.round(800 * daylight, 1),
+        "t_air": np.round(12 + 8 * daylight + rng.normal(0, 0.3, periods), 2),
+        "vpd_air": np.round(2 + 14 * daylight, 2),
+        "u_fric": np.round(rng.uniform(0.05, 0.8, periods), 3),
+        "rel_hum": np.round(90 - 45 * daylight, 1),
+        "t_soil": np.round(10 + rng.normal(0, 0.1, periods), 2),
+    }, index=starts)
+
+
+def _write(path, records, marks="start", minutes=30, time_format=FORMAT, column="stamp"):
+    """Write records with stamps at the start, middle or end of their interval."""
+    shift = {"start": 0, "middle": minutes / 2, "end": minutes}[marks]
+    out = records.copy()
+    out.insert(0, column, (records.index + pd.Timedelta(minutes=shift)).strftime(time_format))
+    out.to_csv(path, index=False)
+    return path
+
+
+def _read(path, **kwargs):
+    options = {"columns": MAPPING, "time_column": "stamp", "time_format": FORMAT}
+    options.update(kwargs)
+    return read_table(path, **options)
+
+
+def _site_toml(tmp_path, body_input="", site="", extra="", csv="tower.csv"):
+    text = (
+        "[site]\nname = \"Hollow Fen\"\nlatitude = -41.3\nlongitude = 172.8\nutc_offset = 12.0\n"
+        f"{site}\n"
+        f"[input]\npath = \"{csv}\"\ntime_column = \"stamp\"\ntime_format = \"{FORMAT}\"\n"
+        f"time_marks = \"end\"\nmissing = [-9999, \"NA\"]\n{body_input}\n"
+        "[input.columns]\nnee = \"co2_flux\"\nrg = \"sw_in\"\ntair = \"t_air\"\n"
+        "vpd = \"vpd_air\"\nustar = \"u_fric\"\n"
+        f"{extra}\n[processing]\nseed = 4\n"
+    )
+    path = tmp_path / "site.toml"
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def _sha256(path):
+    return hashlib.sha256(path.read_bytes()).hexdigest()
+
+
+# ----------------------------------------------------------------------------- reading
+
+
+def test_reads_canonical_frame(tmp_path):
+    """Canonical names, float64, start stamps named 'time', regular freq, values kept."""
+    records = _records()
+    frame, report = _read(_write(tmp_path / "t.csv", records))
+    assert list(frame.columns) == ["nee", "rg", "tair", "vpd", "ustar"]
+    assert all(dtype == np.float64 for dtype in frame.dtypes)
+    assert frame.index.name == "time"
+    assert frame.index.tz is None
+    assert frame.index.freqstr == "30min"
+    pd.testing.assert_index_equal(frame.index, records.index, check_names=False)
+    np.testing.assert_array_equal(frame["nee"].to_numpy(), records["co2_flux"].to_numpy())
+    assert isinstance(report, ReadReport)
+    assert report.records_read == report.records == 96
+    assert report.stamps_inserted == 0
+    assert report.warnings == ()
+
+
+@pytest.mark.parametrize("minutes", [30, 60])
+def test_start_middle_end_give_identical_frames(tmp_path, minutes):
+    """The same records stamped at start, middle or end of the interval read identically."""
+    records = _records(periods=72, minutes=minutes)
+    records.iloc[[7, 8], 0] = -9999
+    records = records.drop(records.index[[5, 30, 31, 32]])
+    frames = {}
+    for marks in ("start", "middle", "end"):
+        path = _write(tmp_path / f"{marks}.csv", records, marks=marks, minutes=minutes)
+        frames[marks], report = _read(path, time_marks=marks)
+        assert report.shift_minutes == {"start": 0, "middle": minutes / 2, "end": minutes}[marks]
+    pd.testing.assert_frame_equal(frames["start"], frames["middle"], check_freq=True)
+    pd.testing.assert_frame_equal(frames["start"], frames["end"], check_freq=True)
+    assert frames["end"].index[0] == records.index[0]
+    assert len(frames["end"]) == 72 and frames["end"]["nee"].isna().sum() == 6
+
+
+def test_end_stamp_midnight_belongs_to_previous_day(tmp_path):
+    """An end stamp of 00:00 is the interval starting 23:30 the day before (DESIGN.md §3)."""
+    records = _records(periods=4, start="2021-06-01 23:00")
+    frame, _ = _read(_write(tmp_path / "t.csv", records, marks="end"), time_marks="end")
+    assert frame.index[1] == pd.Timestamp("2021-06-01 23:30")
+
+
+def test_unit_conversion(tmp_path):
+    """K, kPa and mg CO2 m-2 s-1 become °C, hPa and µmol m-2 s-1 (SI; IUPAC (m))."""
+    records = _records()
+    converted = records.copy()
+    converted["t_air"] = records["t_air"] + UNITS["temperature"]["kelvin_offset"]
+    converted["vpd_air"] = records["vpd_air"] / UNITS["pressure"]["kpa_to_hpa"]
+    converted["co2_flux"] = records["co2_flux"] / UNITS["flux"]["mg_co2_in_umol"]
+    frame, report = _read(_write(tmp_path / "t.csv", converted),
+                          units={"tair": "K", "vpd": "kPa", "nee": "mg CO2 m-2 s-1"})
+    np.testing.assert_allclose(frame["tair"], records["t_air"], atol=1e-9)
+    np.testing.assert_allclose(frame["vpd"], records["vpd_air"], rtol=1e-12)
+    np.testing.assert_allclose(frame["nee"], records["co2_flux"], rtol=1e-5)
+    assert report.units == {"nee": "mg CO2 m-2 s-1", "tair": "K", "vpd": "kPa"}
+
+
+def test_missing_codes_become_nan(tmp_path):
+    """Numeric codes (within tolerance), string codes, 'NaN' and empty cells become NaN."""
+    records = _records().astype(object)
+    records.iloc[3, 0] = "-9999"
+    records.iloc[4, 0] = "-9999.0000001"
+    records.iloc[5, 0] = " na "
+    records.iloc[6, 0] = ""
+    records.iloc[7, 0] = "NaN"
+    records.iloc[8, 1] = "-6999.0"
+    records.iloc[9, 0] = "-9999.5"  # not a code: a (wild) value, counted as outside range
+    path = _write(tmp_path / "t.csv", records)
+    frame, report = _read(path, missing=[-9999, -6999, "NA"])
+    assert frame["nee"].iloc[3:8].isna().all()
+    assert np.isnan(frame["rg"].iloc[8])
+    assert frame["nee"].iloc[9] == -9999.5
+    assert report.missing_cells["nee"] == 5
+    assert report.missing_cells["rg"] == 1
+    assert report.outside_range["nee"] == 1
+    assert frame["nee"].notna().sum() == 96 - 5
+
+
+def test_inserted_stamps_reported(tmp_path):
+    """Stamps absent from the file come back as NaN rows; count and runs reported."""
+    records = _records(periods=96)
+    kept = records.drop(records.index[[10, 11, 12, 40]])
+    frame, report = _read(_write(tmp_path / "t.csv", kept))
+    assert len(frame) == 96
+    assert frame.iloc[[10, 11, 12, 40]].isna().all(axis=None)
+    assert report.records_read == 92
+    assert report.stamps_inserted == 4
+    assert report.inserted_runs == 2
+    assert report.inserted_ranges[0] == (records.index[10], records.index[12], 3)
+    assert report.inserted_ranges[1] == (records.index[40], records.index[40], 1)
+    assert "stamps inserted   4 in 2 run(s)" in str(report)
+
+
+def test_hourly_file(tmp_path):
+    """An hourly file gives a 60-minute frequency, inferred or declared."""
+    records = _records(periods=48, minutes=60)
+    path = _write(tmp_path / "t.csv", records, marks="end", minutes=60)
+    frame, report = _read(path, time_marks="end")
+    assert frame.index.freqstr == "60min" or frame.index.freq == pd.Timedelta(hours=1)
+    assert report.interval_minutes == 60
+    assert frame.index[0] == records.index[0]
+    frame_declared, _ = _read(path, time_marks="end", interval_minutes=60)
+    pd.testing.assert_frame_equal(frame, frame_declared)
+
+
+def test_hourly_file_declared_half_hourly_inserts_every_other(tmp_path):
+    """Declaring 30 min for an hourly file is allowed but the report warns about the gaps."""
+    path = _write(tmp_path / "t.csv", _records(periods=48, minutes=60), minutes=60)
+    frame, report = _read(path, interval_minutes=30)
+    assert report.stamps_inserted == 47
+    assert any("inserted as missing" in w for w in report.warnings)
+
+
+def test_leap_day_kept(tmp_path):
+    """29 February 2020 is read as 48 half-hours (Gregorian calendar: 2020 is a leap year)."""
+    records = _records(periods=4 * 48, start="2020-02-27 00:00")
+    frame, report = _read(_write(tmp_path / "t.csv", records, marks="end"), time_marks="end")
+    assert (frame.index.normalize() == pd.Timestamp("2020-02-29")).sum() == 48
+    assert report.stamps_inserted == 0
+
+
+def test_leap_day_absent_from_file_is_inserted(tmp_path):
+    """A file that skips 29 February gets those 48 stamps inserted as missing."""
+    records = _records(periods=4 * 48, start="2020-02-27 00:00")
+    kept = records[records.index.normalize() != pd.Timestamp("2020-02-29")]
+    frame, report = _read(_write(tmp_path / "t.csv", kept))
+    assert report.stamps_inserted == 48
+    assert report.inserted_ranges == ((pd.Timestamp("2020-02-29 00:00"),
+                                       pd.Timestamp("2020-02-29 23:30"), 48),)
+    assert frame.loc["2020-02-29"].isna().all(axis=None)
+
+
+def test_multi_year_hourly(tmp_path):
+    """Three years of hourly end-stamped records span 2019-2021 with the 2020 leap day."""
+    hours = (pd.Timestamp("2022-01-01") - pd.Timestamp("2019-01-01")) // pd.Timedelta(hours=1)
+    records = _records(periods=hours, start="2019-01-01 00:00", minutes=60)
+    frame, report = _read(_write(tmp_path / "t.csv", records, marks="end", minutes=60),
+                          time_marks="end")
+    assert len(frame) == (365 + 366 + 365) * 24
+    assert sorted(set(frame.index.year)) == [2019, 2020, 2021]
+    assert frame.index[-1] == pd.Timestamp("2021-12-31 23:00")
+
+
+def test_vpd_derived_from_rh(tmp_path):
+    """Without a vpd column, vpd = es(tair)(1 - rh/100) and the report says it was derived."""
+    records = _records()
+    mapping = {k: v for k, v in MAPPING.items() if k != "vpd"} | {"rh": "rel_hum"}
+    frame, report = _read(_write(tmp_path / "t.csv", records), columns=mapping)
+    np.testing.assert_allclose(frame["vpd"], vpd_from_rh(records["rel_hum"], records["t_air"]))
+    assert report.derived == ("vpd",)
+    assert "derived" in report.columns["vpd"]
+    assert list(frame.columns) == ["nee", "rg", "tair", "vpd", "ustar", "rh"]
+
+
+def test_rh_as_fraction_declared(tmp_path):
+    """RH given as a fraction with its unit declared becomes percent."""
+    records = _records()
+    records["rel_hum"] = records["rel_hum"] / 100
+    mapping = dict(MAPPING) | {"rh": "rel_hum"}
+    frame, _ = _read(_write(tmp_path / "t.csv", records), columns=mapping,
+                     units={"rh": "fraction"})
+    np.testing.assert_allclose(frame["rh"], records["rel_hum"] * 100)
+
+
+def test_optional_columns_and_canonical_names_found(tmp_path):
+    """Optional tsoil and nee_flag are read; a file column with a canonical name needs no entry."""
+    records = _records().rename(columns={"u_fric": "ustar"})
+    records["qc"] = np.arange(96) % 3
+    mapping = {k: v for k, v in MAPPING.items() if k != "ustar"} | {"tsoil": "t_soil",
+                                                                     "nee_flag": "qc"}
+    frame, report = _read(_write(tmp_path / "t.csv", records), columns=mapping)
+    assert list(frame.columns) == ["nee", "rg", "tair", "vpd", "ustar", "tsoil", "nee_flag"]
+    assert report.columns["ustar"] == "ustar"
+    np.testing.assert_array_equal(frame["nee_flag"], records["qc"].astype(float))
+
+
+def test_semicolon_delimiter(tmp_path):
+    """A ';'-delimited file reads with delimiter=';'; with ',' the error names the fix."""
+    path = tmp_path / "t.csv"
+    records = _records()
+    out = records.copy()
+    out.insert(0, "stamp", records.index.strftime(FORMAT))
+    out.to_csv(path, index=False, sep=";")
+    frame, _ = _read(path, delimiter=";")
+    assert len(frame) == 96
+    with pytest.raises(MissingColumnError, match=r"delimiter = ';'"):
+        _read(path)
+
+
+def test_input_file_unchanged(tmp_path):
+    """Reading never modifies the input file (SHA-256 and mtime before and after)."""
+    records = _records().astype(object)
+    records.iloc[2, 0] = "-9999"
+    path = _write(tmp_path / "t.csv", records.drop(records.index[5]), marks="end")
+    before, mtime = _sha256(path), path.stat().st_mtime_ns
+    _read(path, time_marks="end")
+    toml = _site_toml(tmp_path, csv="t.csv")
+    toml_before = _sha256(toml)
+    read_config(toml)
+    assert _sha256(path) == before and path.stat().st_mtime_ns == mtime
+    assert _sha256(toml) == toml_before
+
+
+def test_blank_lines_do_not_shift_line_numbers(tmp_path):
+    """Blank lines are skipped, and a later error still names the true line of the file."""
+    path = _write(tmp_path / "t.csv", _records(periods=6))
+    lines = path.read_text().splitlines()
+    lines.insert(3, "")
+    lines[5] = lines[5].replace("2021-06-01", "2021-13-01", 1)
+    path.write_text("\n".join(lines) + "\n\n")
+    with pytest.raises(TimestampError, match=r"data row 4 \(line 6 of the file\)"):
+        _read(path)
+    lines[5] = lines[5].replace("2021-13-01", "2021-06-01", 1)
+    path.write_text("\n".join(lines) + "\n\n")
+    frame, report = _read(path)
+    assert report.records_read == 6 and len(frame) == 6
+
+
+# ----------------------------------------------------------------------------- site TOML
+
+
+def test_read_config_resolves_relative_path(tmp_path):
+    """read_config reads [site] and the CSV relative to the TOML file."""
+    _write(tmp_path / "tower.csv", _records(), marks="end")
+    frame, site = read_config(_site_toml(tmp_path))
+    assert site == Site(name="Hollow Fen", latitude=-41.3, longitude=172.8, utc_offset=12.0)
+    assert len(frame) == 96 and frame.index[0] == pd.Timestamp("2021-06-01 00:00")
+
+
+def test_read_site_config_and_read_input(tmp_path):
+    """read_site_config keeps every setting; read_input gives frame and report."""
+    _write(tmp_path / "tower.csv", _records(), marks="end")
+    site_config = read_site_config(_site_toml(tmp_path, body_input="interval_minutes = 30"))
+    assert isinstance(site_config, SiteConfig)
+    assert site_config.input_path == tmp_path / "tower.csv"
+    assert site_config.time_marks == "end"
+    assert site_config.missing == (-9999, "NA")
+    assert site_config.interval_minutes == 30
+    assert site_config.document["processing"] == {"seed": 4}
+    frame, report = read_input(site_config)
+    assert report.interval_minutes == 30 and report.time_marks == "end"
+    assert report.source.endswith("tower.csv")
+
+
+@pytest.mark.parametrize(("where", "text", "pattern"), [
+    ("top", "[sites]\nx = 1\n", r"\[sites\] is unknown; did you mean 'site'"),
+    ("site", "lattitude = 3.0\n", r"\[site\] lattitude is unknown; did you mean 'latitude'"),
+    ("input", "time_colum = \"x\"\n", r"\[input\] time_colum is unknown; did you mean "
+                                      r"'time_column'"),
+    ("columns", "ustr = \"x\"\n", r"\[input.columns\] ustr is not a canonical variable; did "
+                                  r"you mean 'ustar'"),
+])
+def test_unknown_keys_suggest_nearest(tmp_path, where, text, pattern):
+    """Unknown tables and keys raise ConfigError suggesting the nearest valid key."""
+    if where == "top":
+        path = _site_toml(tmp_path)
+        path.write_text(path.read_text() + text)
+    elif where == "site":
+        path = _site_toml(tmp_path, site=text)
+    elif where == "input":
+        path = _site_toml(tmp_path, body_input=text)
+    else:
+        path = _site_toml(tmp_path, extra="")
+        path.write_text(path.read_text().replace("[processing]", text + "[processing]"))
+    with pytest.raises(ConfigError, match=pattern):
+        read_site_config(path)
+
+
+def test_site_latitude_out_of_range(tmp_path):
+    """A latitude beyond ±90 is a ConfigError naming [site] latitude."""
+    path = _site_toml(tmp_path)
+    path.write_text(path.read_text().replace("latitude = -41.3", "latitude = -141.3"))
+    with pytest.raises(ConfigError, match=r"\[site\] latitude = -141.3 is out of range"):
+        read_site_config(path)
+
+
+@pytest.mark.parametrize(("old", "new", "error", "pattern"), [
+    ("utc_offset = 12.0\n", "", ConfigError, r"\[site\] utc_offset is missing"),
+    ("time_marks = \"end\"\n", "", ConfigError, r"\[input\] time_marks is missing.*start"),
+    ("time_marks = \"end\"", "time_marks = \"ending\"", ConfigError,
+     r"time_marks = 'ending': expected one of 'start', 'middle', 'end'; did you mean 'end'"),
+    ("missing = [-9999, \"NA\"]", "missing = [true]", ConfigError, r"\[input\] missing"),
+    ("missing = [-9999, \"NA\"]", "interval_minutes = 15", ConfigError,
+     r"interval_minutes = 15: expected 30 or 60"),
+    ("missing = [-9999, \"NA\"]", "delimiter = \";;\"", ConfigError, r"delimiter = ';;'"),
+    ("path = \"tower.csv\"", "path = 3", ConfigError, r"\[input\] path = 3"),
+    ("ustar = \"u_fric\"", "ustar = \"t_air\"", ConfigError,
+     r"file column 't_air' is mapped twice, to tair and to ustar"),
+    ("[processing]", "[input.units]\nvpd = \"mbar\"\n[processing]", UnitError,
+     r"\[input.units\] vpd = 'mbar'.*'kPa'"),
+    ("[processing]", "[input.units]\nvdp = \"kPa\"\n[processing]", ConfigError,
+     r"\[input.units\] vdp.*did you mean 'vpd'"),
+])
+def test_bad_settings(tmp_path, old, new, error, pattern):
+    """Each bad [site]/[input] setting raises its error naming the setting."""
+    path = _site_toml(tmp_path)
+    text = path.read_text()
+    assert old in text
+    path.write_text(text.replace(old, new, 1))
+    with pytest.raises(error, match=pattern):
+        read_site_config(path)
+
+
+def test_missing_toml_and_invalid_toml(tmp_path):
+    """A missing site config is InputFileError; broken TOML a ConfigError naming the file."""
+    with pytest.raises(InputFileError, match="absent.toml.*does not exist"):
+        read_site_config(tmp_path / "absent.toml")
+    bad = tmp_path / "bad.toml"
+    bad.write_text("[site\n")
+    with pytest.raises(ConfigError, match="bad.toml.*not valid TOML"):
+        read_site_config(bad)
+
+
+def test_unit_for_unread_variable(tmp_path):
+    """A unit declared for a variable that is not read is a ConfigError."""
+    path = _write(tmp_path / "t.csv", _records())
+    with pytest.raises(ConfigError, match=r"\[input.units\] tsoil = 'K' is given but no tsoil"):
+        _read(path, units={"tsoil": "K"})
+
+
+# ----------------------------------------------------------------------------- bad files
+
+
+def test_input_file_missing(tmp_path):
+    """A missing record file names the path and the setting."""
+    with pytest.raises(InputFileError, match=r"\[input\] path.*nothing.csv.*does not exist"):
+        _read(tmp_path / "nothing.csv")
+    _site_toml(tmp_path)
+    with pytest.raises(InputFileError, match="tower.csv"):
+        read_config(tmp_path / "site.toml")
+
+
+def test_empty_file_and_header_only(tmp_path):
+    """An empty file and a header without records are InputFileErrors."""
+    empty = tmp_path / "empty.csv"
+    empty.write_text("")
+    with pytest.raises(InputFileError, match="empty.csv.*is empty"):
+        _read(empty)
+    header = tmp_path / "header.csv"
+    header.write_text("stamp,co2_flux,sw_in,t_air,vpd_air,u_fric\n")
+    with pytest.raises(InputFileError, match="header.csv.*no records"):
+        _read(header)
+
+
+def test_missing_column_lists_file_columns(tmp_path):
+    """A mapped column absent from the file names the entry, a near name and the columns."""
+    path = _write(tmp_path / "t.csv", _records().rename(columns={"u_fric": "u_frict"}))
+    with pytest.raises(MissingColumnError,
+                       match=r"\[input.columns\] ustar = 'u_fric'.*did you mean 'u_frict'.*"
+                             r"the file has columns: 'stamp', 'co2_flux'"):
+        _read(path)
+
+
+def test_required_variable_not_mapped(tmp_path):
+    """A required variable neither mapped nor present by name is a MissingColumnError."""
+    path = _write(tmp_path / "t.csv", _records())
+    mapping = {k: v for k, v in MAPPING.items() if k != "rg"}
+    with pytest.raises(MissingColumnError, match=r"\[input.columns\] rg is not mapped.*'sw_in'"):
+        _read(path, columns=mapping)
+    mapping = {k: v for k, v in MAPPING.items() if k != "vpd"}
+    with pytest.raises(MissingColumnError, match=r"vpd is not mapped.*or map rh"):
+        _read(path, columns=mapping)
+
+
+def test_time_column_missing(tmp_path):
+    """A wrong time column names [input] time_column."""
+    path = _write(tmp_path / "t.csv", _records(), column="TIMESTAMP")
+    with pytest.raises(MissingColumnError, match=r"\[input\] time_column = 'stamp'"):
+        _read(path)
+
+
+def test_duplicate_header(tmp_path):
+    """A mapped column name that appears twice in the header is an InputFileError."""
+    path = _write(tmp_path / "t.csv", _records().rename(columns={"t_soil": "t_air"}))
+    with pytest.raises(InputFileError, match=r"column 't_air' \(for tair\) appears more than once"):
+        _read(path)
+
+
+def test_unparsable_timestamp_names_row(tmp_path):
+    """The first bad stamp is named by data row, line, text and format."""
+    path = _write(tmp_path / "t.csv", _records())
+    text = path.read_text().splitlines()
+    text[3] = "2021/06/01 01:00" + text[3][16:]
+    text[7] = "garbage" + text[7][16:]
+    path.write_text("\n".join(text) + "\n")
+    with pytest.raises(TimestampError, match=r"data row 3 \(line 4 of the file\) has stamp "
+                                             r"'2021/06/01 01:00'.*'%Y-%m-%d %H:%M'; 2 stamp"):
+        _read(path)
+
+
+def test_hour_24_hint(tmp_path):
+    """A stamp at hour 24 gets a hint to write midnight as 00:00."""
+    path = _write(tmp_path / "t.csv", _records(periods=4, start="2021-06-01 23:00"), marks="end")
+    text = path.read_text().replace("2021-06-02 00:00", "2021-06-01 24:00")
+    path.write_text(text)
+    with pytest.raises(TimestampError, match="hour 24"):
+        _read(path, time_marks="end")
+
+
+def test_timestamps_with_utc_offset_rejected(tmp_path):
+    """Stamps that carry an offset are rejected: the frame is local standard time."""
+    records = _records(periods=4)
+    path = _write(tmp_path / "t.csv", records, time_format="%Y-%m-%dT%H:%M+01:00")
+    with pytest.raises(TimestampError, match="UTC offset"):
+        _read(path, time_format="ISO8601")
+
+
+def test_duplicate_stamp_names_rows(tmp_path):
+    """A repeated stamp names the stamp, both rows and the daylight-saving hint."""
+    records = _records(periods=10)
+    repeated = pd.concat([records.iloc[:5], records.iloc[[4]], records.iloc[5:]])
+    path = _write(tmp_path / "t.csv", repeated)
+    with pytest.raises(DuplicateTimestampError,
+                       match=r"stamp '2021-06-01 02:00' occurs 2 times: data row 5 \(line 6 "
+                             r"of the file\), data row 6 \(line 7.*daylight"):
+        _read(path)
+
+
+def test_non_monotonic_names_row(tmp_path):
+    """Stamps going backwards name the row and both stamps."""
+    records = _records(periods=10)
+    swapped = records.iloc[[0, 1, 2, 4, 3, 5, 6, 7, 8, 9]]
+    with pytest.raises(NonMonotonicTimestampError,
+                       match=r"data row 5 \(line 6 of the file\): '2021-06-01 01:30' comes "
+                             r"after '2021-06-01 02:00'"):
+        _read(_write(tmp_path / "t.csv", swapped))
+
+
+def test_ten_minute_records_rejected(tmp_path):
+    """10-minute spacing is a SpacingError saying what was found."""
+    path = _write(tmp_path / "t.csv", _records(periods=30, minutes=10))
+    with pytest.raises(SpacingError, match=r"most common spacing between stamps is 10 minutes"):
+        _read(path)
+
+
+def test_irregular_step_rejected(tmp_path):
+    """A step that is not a multiple of the interval names the rows and the spacing."""
+    records = _records(periods=20)
+    index = records.index.to_series()
+    index.iloc[8:] = index.iloc[8:] + pd.Timedelta(minutes=17)
+    records.index = pd.DatetimeIndex(index)
+    with pytest.raises(SpacingError, match=r"47 minutes apart at data row 9 \(line 10"):
+        _read(_write(tmp_path / "t.csv", records))
+    with pytest.raises(SpacingError, match=r"not a whole multiple of the 60-minute"):
+        _read(tmp_path / "t.csv", interval_minutes=60)
+
+
+def test_single_record(tmp_path):
+    """One record cannot show its spacing unless interval_minutes is given."""
+    path = _write(tmp_path / "t.csv", _records(periods=1))
+    with pytest.raises(SpacingError, match="interval_minutes"):
+        _read(path)
+    frame, _ = _read(path, interval_minutes=30)
+    assert len(frame) == 1 and frame.index.freqstr == "30min"
+
+
+def test_non_numeric_cell_names_column_and_row(tmp_path):
+    """A text cell in a data column names the column, variable, row and a fix."""
+    records = _records().astype(object)
+    records.iloc[6, 2] = "ERR"
+    with pytest.raises(InputFileError, match=r"column 't_air' \(tair\): data row 7 \(line 8 "
+                                             r"of the file\) has 'ERR'.*add it to \[input\] "
+                                             "missing"):
+        _read(_write(tmp_path / "t.csv", records))
+
+
+def test_decimal_comma_hint(tmp_path):
+    """A decimal comma in a ';' file is named as such."""
+    records = _records().astype(object)
+    records.iloc[2, 1] = "12,5"
+    path = tmp_path / "t.csv"
+    out = records.copy()
+    out.insert(0, "stamp", _records().index.strftime(FORMAT))
+    out.to_csv(path, index=False, sep=";")
+    with pytest.raises(InputFileError, match=r"'sw_in' \(rg\): data row 3.*decimal comma"):
+        _read(path, delimiter=";")
+
+
+def test_unknown_unit(tmp_path):
+    """An unknown unit raises UnitError listing the accepted units."""
+    path = _write(tmp_path / "t.csv", _records())
+    with pytest.raises(UnitError, match=r"\[input.units\] tair = 'F'.*'K'"):
+        _read(path, units={"tair": "F"})
+
+
+def test_time_marks_invalid(tmp_path):
+    """An invalid time_marks lists the valid choices."""
+    path = _write(tmp_path / "t.csv", _records())
+    with pytest.raises(ConfigError, match=r"time_marks = 'begin'.*'start', 'middle', 'end'"):
+        _read(path, time_marks="begin")
+
+
+def test_column_mapped_twice(tmp_path):
+    """Two canonical variables mapped to one file column is a ConfigError."""
+    path = _write(tmp_path / "t.csv", _records())
+    with pytest.raises(ConfigError, match=r"'t_air' is mapped twice, to tair and to tsoil"):
+        _read(path, columns=dict(MAPPING) | {"tsoil": "t_air"})
+
+
+def test_off_grid_stamps_warn(tmp_path):
+    """Middle stamps declared as end stamps land at minute 45: the report warns."""
+    path = _write(tmp_path / "t.csv", _records(), marks="middle")
+    _, report = _read(path, time_marks="end")
+    assert any("minute 45" in w and "time_marks" in w for w in report.warnings)
+
+
+# ----------------------------------------------------------------------------- plausibility
+
+
+def test_kelvin_declared_celsius(tmp_path):
+    """Temperatures near 285 read as °C stop the reader with the kelvin hint."""
+    records = _records()
+    records["t_air"] = records["t_air"] + UNITS["temperature"]["kelvin_offset"]
+    with pytest.raises(ImplausibleValueError, match=r"'t_air' \(tair.*look like 'K'.*"
+                                                    r"\[input.units\] tair = \"K\""):
+        _read(_write(tmp_path / "t.csv", records))
+
+
+def test_celsius_declared_kelvin(tmp_path):
+    """Temperatures in °C declared as K stop the reader and suggest °C."""
+    with pytest.raises(ImplausibleValueError, match=r"tair, read as 'K'.*look like '°C'"):
+        _read(_write(tmp_path / "t.csv", _records()), units={"tair": "K"})
+
+
+def test_hpa_declared_kpa(tmp_path):
+    """VPD in hPa declared kPa (x10 too large) stops the reader and suggests hPa."""
+    records = _records()  # vpd 2..16 hPa, read as 20..160 hPa
+    with pytest.raises(ImplausibleValueError, match=r"vpd, read as 'kPa'.*look like 'hPa'"):
+        _read(_write(tmp_path / "t.csv", records), units={"vpd": "kPa"})
+
+
+def test_pa_declared_hpa(tmp_path):
+    """VPD in Pa read as hPa stops the reader and suggests Pa."""
+    records = _records()
+    records["vpd_air"] = records["vpd_air"] * 100
+    with pytest.raises(ImplausibleValueError, match=r"vpd, read as 'hPa'.*look like 'Pa'"):
+        _read(_write(tmp_path / "t.csv", records))
+
+
+def test_rh_fraction_declared_percent(tmp_path):
+    """RH that never exceeds 1.05 % is a fraction: error with the fix."""
+    records = _records()
+    records["rel_hum"] = records["rel_hum"] / 100
+    mapping = dict(MAPPING) | {"rh": "rel_hum"}
+    with pytest.raises(ImplausibleValueError, match=r"rh = \"fraction\""):
+        _read(_write(tmp_path / "t.csv", records), columns=mapping)
+
+
+def test_undeclared_missing_code_hint(tmp_path):
+    """A frequent undeclared code (here -6999) stops the reader and suggests [input] missing."""
+    records = _records()
+    records.iloc[::4, 1] = -6999
+    with pytest.raises(ImplausibleValueError, match=r"the value -6999 alone occurs 24 times.*"
+                                                    r"\[input\] missing"):
+        _read(_write(tmp_path / "t.csv", records))
+
+
+def test_isolated_outliers_are_counted_not_fatal(tmp_path):
+    """Outliers below the 5 % rule are counted in the report and left for screening."""
+    records = _records(periods=200)
+    records.iloc[[5, 50, 120], 0] = [250.0, -400.0, 180.0]  # 1.5 % of nee
+    frame, report = _read(_write(tmp_path / "t.csv", records))
+    assert IMPLAUSIBLE_SHARE == 0.05
+    assert report.outside_range["nee"] == 3
+    assert frame["nee"].iloc[50] == -400.0
+    assert any(w.startswith("nee: 3 value(s) outside") for w in report.warnings)
+
+
+def test_substantial_share_outside_is_fatal(tmp_path):
+    """More than 5 % of values outside the range stops the reader with counts and median."""
+    records = _records(periods=100)
+    records.iloc[:8, 4] = 7.5  # ustar 7.5 m s-1 in 8 % of records
+    with pytest.raises(ImplausibleValueError, match=r"'u_fric' \(ustar.*8 of 100 present "
+                                                    r"values \(8.0%\)"):
+        _read(_write(tmp_path / "t.csv", records))
+
+
+def test_cold_dry_winter_is_legitimate(tmp_path):
+    """A high-latitude winter record (tair -35..-15 °C, vpd < 1 hPa) raises nothing."""
+    records = _records(periods=480, start="2021-01-05")
+    rng = np.random.default_rng(3)
+    records["t_air"] = np.round(rng.uniform(-35, -15, 480), 2)
+    records["vpd_air"] = np.round(rng.uniform(0.02, 0.9, 480), 3)
+    records["sw_in"] = np.round(np.clip(records["sw_in"] / 8, 0, None), 1)
+    records["co2_flux"] = np.round(rng.normal(0.4, 0.3, 480), 3)
+    frame, report = _read(_write(tmp_path / "t.csv", records))
+    # near -25 °C es is about 0.8 hPa (CRC/WMO Magnus (m)), so vpd/es spans most of 0..1
+    assert not any("vpd" in w for w in report.warnings)
+    assert len(frame) == 480
+
+
+def test_kpa_read_as_hpa_warns(tmp_path):
+    """VPD in kPa left as hPa is plausible but suspicious: the report warns."""
+    records = _records(periods=200)
+    records["vpd_air"] = records["vpd_air"] / 10
+    frame, report = _read(_write(tmp_path / "t.csv", records))
+    assert any("vpd" in w and "kPa" in w for w in report.warnings)
+
+
+def test_mg_co2_read_as_micromol_warns(tmp_path):
+    """NEE in mg CO2 m-2 s-1 left undeclared is plausible but tiny: the report warns."""
+    records = _records(periods=200)
+    records["co2_flux"] = (records["co2_flux"] / UNITS["flux"]["mg_co2_in_umol"]).round(4)
+    _, report = _read(_write(tmp_path / "t.csv", records))
+    assert any("mg CO2 m-2 s-1" in w for w in report.warnings)
+
+
+def test_errors_are_fluxpart_errors():
+    """Every reader error is a FluxpartError and thus a ValueError."""
+    for error in (ConfigError, InputFileError, MissingColumnError, TimestampError,
+                  DuplicateTimestampError, NonMonotonicTimestampError, SpacingError, UnitError,
+                  ImplausibleValueError):
+        assert issubclass(error, FluxpartError) and issubclass(error, ValueError)
+
+
+# ----------------------------------------------------------------------------- coverage
+
+
+def test_coverage_table_values():
+    """Share present, longest gap, first/last present, range and outside counts."""
+    index = pd.date_range("2021-01-01", periods=96, freq="30min", name="time")
+    nee = np.arange(96, dtype=float)
+    nee[:3] = np.nan
+    nee[10:58] = np.nan  # 48 records = 1 day
+    nee[-1] = 150.0  # outside ±100
+    frame = pd.DataFrame({"nee": nee, "rg": np.full(96, np.nan), "other": 1.0}, index=index)
+    before = frame.copy()
+    table = coverage_table(frame, 30)
+    pd.testing.assert_frame_equal(frame, before)
+    assert list(table.columns) == list(COVERAGE_COLUMNS)
+    assert list(table.index) == ["nee", "rg"]
+    row = table.loc["nee"]
+    assert row["present"] == 96 - 51
+    assert row["present_share"] == pytest.approx(45 / 96)
+    assert row["longest_gap_records"] == 48
+    assert row["longest_gap_days"] == pytest.approx(1.0)
+    assert row["first_present"] == index[3] and row["last_present"] == index[-1]
+    assert row["minimum"] == 3.0 and row["maximum"] == 150.0
+    assert row["outside_range"] == 1
+    empty = table.loc["rg"]
+    assert empty["present"] == 0 and empty["longest_gap_records"] == 96
+    assert pd.isna(empty["first_present"]) and np.isnan(empty["minimum"])
+
+
+def test_coverage_hourly_days():
+    """With 60-minute records, 24 missing records are one day."""
+    index = pd.date_range("2021-01-01", periods=72, freq="60min")
+    values = np.ones(72)
+    values[24:48] = np.nan
+    table = coverage_table(pd.DataFrame({"tair": values}, index=index), 60)
+    assert table.loc["tair", "longest_gap_days"] == pytest.approx(1.0)
+
+
+def test_format_check_text(tmp_path):
+    """The check text names site, period, interval, insertions, coverage and problems."""
+    records = _records(periods=96)
+    records.iloc[[5, 6], 0] = 300.0
+    kept = records.drop(records.index[20:24])
+    _write(tmp_path / "tower.csv", kept, marks="end")
+    site_config = read_site_config(_site_toml(tmp_path))
+    frame, report = read_input(site_config)
+    text = format_check(site_config.site, report, coverage_table(frame, report.interval_minutes))
+    assert "Hollow Fen (latitude -41.3, longitude 172.8, UTC+12 h" in text
+    assert "2021-06-01 00:00 .. 2021-06-02 23:30" in text
+    assert "interval          30 min" in text
+    assert "stamps inserted   4 in 1 run(s)" in text
+    assert "2021-06-01 10:00 .. 2021-06-01 11:30 (4 records)" in text
+    table_lines = [line for line in text.splitlines() if line.startswith(("variable", "nee "))]
+    assert len(table_lines) == 2
+    assert table_lines[0].index("present") < table_lines[0].index("longest gap")
+    assert "problems found (1)" in text and "nee: 2 value(s) outside" in text
+    assert text.endswith("\n")
+
+
+def test_column_without_any_value_warns(tmp_path):
+    """A mapped column that is all missing codes is reported, not silently kept."""
+    records = _records()
+    records["t_soil"] = -9999
+    frame, report = _read(_write(tmp_path / "t.csv", records),
+                          columns=dict(MAPPING) | {"tsoil": "t_soil"})
+    assert frame["tsoil"].isna().all()
+    assert any(w.startswith("tsoil: column 't_soil' has no values") for w in report.warnings)
+
+
+def test_units_line_under_header_hint(tmp_path):
+    """A units line under the header fails on data row 1 with a hint about it."""
+    path = _write(tmp_path / "t.csv", _records(periods=4))
+    lines = path.read_text().splitlines()
+    lines.insert(1, "yyyy-mm-dd HH:MM,umol m-2 s-1,W m-2,degC,hPa,m s-1,%,degC")
+    path.write_text("\n".join(lines) + "\n")
+    with pytest.raises(TimestampError, match=r"data row 1 \(line 2 of the file\).*units line"):
+        _read(path)

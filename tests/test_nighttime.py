@@ -1,0 +1,480 @@
+"""Tests of fluxpart.partition.nighttime (Reichstein et al. 2005; Lloyd & Taylor 1994).
+
+External checks: SciPy's ``curve_fit`` and statsmodels' ``OLS`` fitting the same
+model to the same points. Known-truth recovery tests use invented data (planted
+E0 and Rref plus noise), the only place invented data is used here.
+"""
+
+import dataclasses
+
+import numpy as np
+import pandas as pd
+import pytest
+import scipy
+import statsmodels
+import statsmodels.api as sm
+from scipy.optimize import curve_fit
+
+from fluxpart.config import Config
+from fluxpart.errors import (
+    ConfigError,
+    FluxpartError,
+    ImplausibleValueError,
+    InsufficientDataError,
+)
+from fluxpart.partition.nighttime import (
+    NighttimeResult,
+    annual_e0,
+    fit_e0_windows,
+    fit_rref_windows,
+    partition_nighttime,
+    rref_per_record,
+)
+
+
+# --------------------------------------------------------------------------- #
+# Invented known-truth data (only for recovery tests and as fitting input)
+# --------------------------------------------------------------------------- #
+def _eq11(temperature_celsius, rref, e0):
+    """Lloyd & Taylor (1994) eq. 11, written out independently of fluxpart."""
+    kelvin = np.asarray(temperature_celsius) + 273.15
+    return rref * np.exp(e0 * (1.0 / (283.15 - 227.13) - 1.0 / (kelvin - 227.13)))
+
+
+def _synthetic(rng, start="2021-01-01", end="2021-12-31 23:30", freq="30min", e0=220.0,
+               rref=None, noise=0.25, measured_fraction=0.6, temperature=None):
+    """Invented night respiration with planted E0 and Rref, plus Gaussian noise.
+
+    Returns index, measured NEE (NaN where 'not measured'), filled NEE (truth +
+    noise everywhere, day uptake included), temperature, night mask, true Reco.
+    """
+    index = pd.date_range(start, end, freq=freq)
+    days = np.asarray((index - index[0]) / pd.Timedelta(days=1))
+    hour = index.hour.to_numpy() + index.minute.to_numpy() / 60.0
+    if temperature is None:
+        weather = pd.Series(rng.normal(0.0, 1.0, len(index))).rolling(
+            int(3 * 1440 / pd.Timedelta(freq).total_seconds() * 60), min_periods=1).mean()
+        temperature = (8.0 - 10.0 * np.cos(2 * np.pi * (days - 20.0) / 365.25)
+                       + 4.0 * np.sin(2 * np.pi * (hour - 9.0) / 24.0)
+                       + 20.0 * weather.to_numpy())
+    is_night = (hour < 6.0) | (hour >= 19.0)
+    if rref is None:
+        rref = 2.0 + 1.0 * np.sin(2 * np.pi * (days - 100.0) / 365.25)
+    e0_record = np.broadcast_to(np.asarray(e0, dtype=float), index.shape)
+    reco = _eq11(temperature, rref, e0_record)
+    uptake = np.where(is_night, 0.0, 8.0 * np.clip(np.sin(np.pi * (hour - 6.0) / 13.0), 0, None))
+    nee_filled = reco - uptake + rng.normal(0.0, noise, len(index))
+    measured = is_night & (rng.random(len(index)) < measured_fraction)
+    nee_measured = np.where(measured, nee_filled, np.nan)
+    return index, nee_measured, nee_filled, np.asarray(temperature, dtype=float), is_night, reco
+
+
+def _config_settings():
+    """The keyword arguments the pipeline passes, taken from Config() by name."""
+    config = Config()
+    names = [f.name for f in dataclasses.fields(Config)
+             if f.name.startswith(("e0_", "rref_")) or f.name == "respiration_driver"]
+    return {name: getattr(config, name) for name in names}
+
+
+# --------------------------------------------------------------------------- #
+# E0 windows against SciPy
+# --------------------------------------------------------------------------- #
+def test_single_window_fit_matches_scipy_curve_fit(rng):
+    """One window's (Rref, E0) and standard errors equal SciPy's curve_fit on the same points."""
+    # exactly one 15-day window: the record starts at noon and lasts 15 days
+    index, nee, _, temperature, night, _ = _synthetic(
+        rng, start="2021-05-01 12:00", end="2021-05-16 11:30", e0=180.0, rref=2.2, noise=0.3)
+    windows = fit_e0_windows(index, nee, temperature, night)
+    assert len(windows) == 1
+    window = windows.iloc[0]
+    usable = night & np.isfinite(nee)
+    # SciPy 1.17 (the tested version is printed on failure): scipy.optimize.curve_fit(
+    # model, T, NEE, p0=(1, 300)), default method "lm" (MINPACK), absolute_sigma=False,
+    # so pcov = s² (JᵀJ)⁻¹ with s² = SSR/(n - 2), the same estimator as ours.
+    params, covariance = curve_fit(_eq11, temperature[usable], nee[usable], p0=(1.0, 300.0))
+    errors = np.sqrt(np.diag(covariance))
+    message = f"scipy {scipy.__version__}"
+    assert window["points"] == usable.sum()
+    # 1e-4 relative: both stop at convergence tolerances far below that
+    assert window["rref"] == pytest.approx(params[0], rel=1e-4), message
+    assert window["e0"] == pytest.approx(params[1], rel=1e-4), message
+    # 1 %: standard errors from the Jacobian at slightly different stopping points
+    assert window["rref_se"] == pytest.approx(errors[0], rel=0.01), message
+    assert window["e0_se"] == pytest.approx(errors[1], rel=0.01), message
+    assert bool(window["accepted"]) and window["reason"] == ""
+
+
+def test_every_window_of_a_year_matches_scipy(rng):
+    """All fitted windows of a site-year agree with curve_fit window by window."""
+    index, nee, _, temperature, night, _ = _synthetic(rng)
+    windows = fit_e0_windows(index, nee, temperature, night)
+    usable = night & np.isfinite(nee)
+    for _, window in windows.iloc[::7].iterrows():
+        inside = usable & (index >= window["window_start"]) & (index < window["window_end"])
+        # SciPy: scipy.optimize.curve_fit(model, T, NEE, p0=(1, 300)), method "lm"
+        params, covariance = curve_fit(_eq11, temperature[inside], nee[inside],
+                                       p0=(1.0, 300.0))
+        assert window["points"] == inside.sum()
+        assert window["e0"] == pytest.approx(params[1], rel=1e-4)
+        assert window["rref"] == pytest.approx(params[0], rel=1e-4)
+        assert window["e0_se"] == pytest.approx(np.sqrt(covariance[1, 1]), rel=0.01)
+
+
+def test_e0_window_layout_and_columns(rng):
+    """15-day windows every 5 days from local noon; a 365-day year gives ~71 windows."""
+    index, nee, _, temperature, night, _ = _synthetic(rng)
+    windows = fit_e0_windows(index, nee, temperature, night)
+    assert list(windows.columns) == ["window_start", "window_end", "window_centre", "year",
+                                     "points", "temperature_range", "e0", "e0_se", "rref",
+                                     "rref_se", "accepted", "reason"]
+    assert 70 <= len(windows) <= 73
+    assert windows["window_start"].iloc[0] == pd.Timestamp("2020-12-31 12:00")
+    steps = windows["window_start"].diff().dropna().unique()
+    assert list(steps) == [pd.Timedelta(days=5)]
+    assert ((windows["window_end"] - windows["window_start"]) == pd.Timedelta(days=15)).all()
+    assert (windows["year"] == windows["window_centre"].dt.year).all()
+    assert windows["window_end"].iloc[-1] >= index[-1]
+
+
+# --------------------------------------------------------------------------- #
+# Known-truth recovery (invented data)
+# --------------------------------------------------------------------------- #
+def test_recovers_planted_e0_and_reco(rng):
+    """Planted E0 = 220 K and a seasonal Rref are recovered from noisy night data."""
+    index, nee, filled, temperature, night, reco_true = _synthetic(rng, e0=220.0)
+    result = partition_nighttime(index, nee, filled, temperature, temperature, night)
+    assert isinstance(result, NighttimeResult)
+    e0 = result.e0_annual.loc[2021, "e0"]
+    # best-three-windows mean: each window's se is ~10-20 K at this noise, and
+    # picking the smallest se favours some windows, so allow 10 %
+    assert e0 == pytest.approx(220.0, rel=0.10)
+    accepted = result.e0_windows[result.e0_windows["accepted"]]
+    assert accepted["e0"].median() == pytest.approx(220.0, rel=0.05)
+    # annual Reco within 3 % of the truth, the point of the method
+    assert result.reco.sum() == pytest.approx(reco_true.sum(), rel=0.03)
+    np.testing.assert_allclose(result.gpp, result.reco - filled, rtol=0, atol=0)
+    assert result.e0_annual.loc[2021, "source"] == "fitted"
+
+
+def test_recovers_seasonal_rref(rng):
+    """4-day Rref windows follow a planted seasonal Rref within 10 % (median)."""
+    index, nee, filled, temperature, night, _ = _synthetic(rng, e0=220.0, noise=0.15)
+    days = np.asarray((index - index[0]) / pd.Timedelta(days=1))
+    rref_true = 2.0 + 1.0 * np.sin(2 * np.pi * (days - 100.0) / 365.25)
+    result = partition_nighttime(index, nee, filled, temperature, temperature, night,
+                                 **_config_settings())
+    relative = np.abs(result.rref / rref_true - 1.0)
+    assert np.median(relative) < 0.10
+    windows = result.rref_windows
+    assert list(windows.columns) == ["window_start", "window_end", "window_centre", "points",
+                                     "rref", "rref_se", "e0"]
+    gaps = windows["window_start"].diff().dropna()
+    assert (gaps >= pd.Timedelta(days=4)).all() and (gaps % pd.Timedelta(days=4)
+                                                     == pd.Timedelta(0)).all()
+
+
+def test_hourly_records(rng):
+    """60-minute records: same method, planted E0 recovered within 12 %."""
+    index, nee, filled, temperature, night, reco_true = _synthetic(
+        rng, freq="60min", end="2021-12-31 23:00", e0=200.0, noise=0.2, measured_fraction=0.8)
+    result = partition_nighttime(index, nee, filled, temperature, temperature, night)
+    assert result.e0_annual.loc[2021, "e0"] == pytest.approx(200.0, rel=0.12)
+    assert result.reco.sum() == pytest.approx(reco_true.sum(), rel=0.03)
+    assert result.e0_windows["points"].max() <= 15 * 11  # 11 night hours a day
+
+
+def test_multi_year_e0_per_calendar_year(rng):
+    """Two calendar years (one leap) with different planted E0 each get their own E0."""
+    index = pd.date_range("2023-01-01", "2024-12-31 23:30", freq="30min")
+    e0_true = np.where(index.year == 2023, 150.0, 280.0)
+    index, nee, filled, temperature, night, _ = _synthetic(
+        rng, start="2023-01-01", end="2024-12-31 23:30", e0=e0_true, noise=0.15)
+    result = partition_nighttime(index, nee, filled, temperature, temperature, night)
+    annual = result.e0_annual
+    assert list(annual.index) == [2023, 2024]
+    assert annual.loc[2023, "e0"] == pytest.approx(150.0, rel=0.15)
+    assert annual.loc[2024, "e0"] == pytest.approx(280.0, rel=0.15)
+    np.testing.assert_array_equal(result.e0[index.year == 2023], annual.loc[2023, "e0"])
+    np.testing.assert_array_equal(result.e0[index.year == 2024], annual.loc[2024, "e0"])
+    windows = result.e0_windows
+    crossing = windows["window_start"].dt.year != windows["window_end"].dt.year
+    assert crossing.any()  # windows cross the year boundary
+
+
+def test_year_touched_briefly_borrows_overlapping_windows(rng):
+    """A record starting on 30 December: that year takes E0 from the windows overlapping it."""
+    index, nee, filled, temperature, night, _ = _synthetic(
+        rng, start="2020-12-30", end="2021-03-31 23:30", e0=220.0, noise=0.15)
+    result = partition_nighttime(index, nee, filled, temperature, temperature, night)
+    annual = result.e0_annual
+    assert list(annual.index) == [2020, 2021]
+    assert (result.e0_windows["year"] == 2020).sum() == 0
+    assert annual.loc[2020, "windows_tried"] >= 1
+    assert annual.loc[2020, "source"] == "fitted"
+
+
+def test_night_gpp_negative_values_kept(rng):
+    """Night GPP scatters around zero and negative values are kept, not clipped."""
+    index, nee, filled, temperature, night, _ = _synthetic(rng)
+    result = partition_nighttime(index, nee, filled, temperature, temperature, night)
+    night_gpp = result.gpp[night]
+    assert (night_gpp < 0).sum() > 0.2 * night.sum()
+    assert abs(np.mean(night_gpp)) < 0.1
+
+
+def test_missing_filled_temperature_gives_nan_reco(rng):
+    """Reco (and GPP) are NaN only where the filled temperature is missing."""
+    index, nee, filled, temperature, night, _ = _synthetic(rng)
+    filled_temperature = temperature.copy()
+    filled_temperature[100:110] = np.nan
+    result = partition_nighttime(index, nee, filled, temperature, filled_temperature, night)
+    assert np.isnan(result.reco[100:110]).all() and np.isnan(result.gpp[100:110]).all()
+    assert np.isfinite(np.delete(result.reco, np.arange(100, 110))).all()
+
+
+def test_deterministic(rng):
+    """The same input gives byte-identical results."""
+    data = _synthetic(rng)
+    first = partition_nighttime(*data[:4], data[3], data[4])
+    second = partition_nighttime(*data[:4], data[3], data[4])
+    assert first.reco.tobytes() == second.reco.tobytes()
+    pd.testing.assert_frame_equal(first.e0_windows, second.e0_windows)
+    pd.testing.assert_frame_equal(first.rref_windows, second.rref_windows)
+
+
+def test_inputs_not_modified(rng):
+    """Input Series and arrays are left unchanged."""
+    index, nee, filled, temperature, night, _ = _synthetic(rng)
+    series = [pd.Series(a, index=index) for a in (nee, filled, temperature, temperature)]
+    night_series = pd.Series(night, index=index)
+    copies = [s.copy() for s in series] + [night_series.copy()]
+    index_copy = index.copy()
+    partition_nighttime(index, *series, night_series)
+    for original, copy in zip(series + [night_series], copies, strict=True):
+        pd.testing.assert_series_equal(original, copy)
+    assert index.equals(index_copy)
+
+
+# --------------------------------------------------------------------------- #
+# Rejection rules
+# --------------------------------------------------------------------------- #
+def _one_window(rng, temperature, e0=200.0, rref=2.0, noise=0.1, fraction=1.0):
+    index = pd.date_range("2021-06-01 12:00", periods=15 * 48, freq="30min")
+    hour = index.hour.to_numpy()
+    night = (hour < 5) | (hour >= 21)
+    truth = _eq11(temperature, rref, e0)
+    nee = np.where(night & (rng.random(len(index)) < fraction),
+                   truth + rng.normal(0, noise, len(index)), np.nan)
+    return index, nee, temperature, night
+
+
+def test_rejects_too_few_points(rng):
+    """A window with fewer than e0_min_points night records is rejected."""
+    temperature = np.linspace(5.0, 20.0, 15 * 48)
+    index, nee, temperature, night = _one_window(rng, temperature, fraction=0.012)
+    windows = fit_e0_windows(index, nee, temperature, night, e0_min_points=6)
+    assert windows["points"].iloc[0] < 6
+    assert not windows["accepted"].iloc[0]
+    assert windows["reason"].iloc[0].startswith("too few night records")
+
+
+def test_rejects_narrow_temperature_range(rng):
+    """A window whose temperatures span less than 5 K is rejected (Reichstein et al. 2005)."""
+    temperature = 12.0 + 1.5 * np.sin(np.linspace(0.0, 30.0, 15 * 48))
+    index, nee, temperature, night = _one_window(rng, temperature)
+    windows = fit_e0_windows(index, nee, temperature, night)
+    window = windows.iloc[0]
+    assert window["temperature_range"] < 5.0
+    assert not window["accepted"]
+    assert "temperature range below 5 K" in window["reason"]
+    assert np.isfinite(window["e0"])  # still fitted, so the estimate is visible
+
+
+def test_rejects_e0_out_of_bounds(rng):
+    """A fitted E0 above the 450 K bound is rejected; the same data pass with wider bounds."""
+    temperature = np.linspace(0.0, 25.0, 15 * 48)
+    index, nee, temperature, night = _one_window(rng, temperature, e0=700.0, noise=0.05)
+    windows = fit_e0_windows(index, nee, temperature, night)
+    assert windows["e0"].iloc[0] > 450.0
+    assert not windows["accepted"].iloc[0]
+    assert "E0 outside 30-450 K" in windows["reason"].iloc[0]
+    wide = fit_e0_windows(index, nee, temperature, night, e0_bounds=(30.0, 1000.0))
+    assert wide["accepted"].iloc[0]
+
+
+def test_rejects_large_relative_error(rng):
+    """A window whose E0 standard error exceeds half of E0 (the default limit) is rejected."""
+    temperature = np.linspace(5.0, 11.0, 15 * 48)
+    index, nee, temperature, night = _one_window(rng, temperature, e0=100.0, noise=2.0)
+    windows = fit_e0_windows(index, nee, temperature, night, e0_bounds=(1.0, 5000.0))
+    window = windows.iloc[0]
+    assert window["e0_se"] / abs(window["e0"]) > 0.5
+    assert not window["accepted"]
+    assert window["reason"] == "E0 relative standard error above 0.5"
+    lenient = fit_e0_windows(index, nee, temperature, night, e0_bounds=(1.0, 5000.0),
+                             e0_max_relative_error=5.0)
+    assert lenient["accepted"].iloc[0]
+
+
+def test_no_acceptable_window_error_message(rng):
+    """No acceptable window: the error names the year, night records, windows, reasons, setting."""
+    index, nee, filled, _, night, _ = _synthetic(rng, end="2021-03-31 23:30")
+    flat = np.full(len(index), 8.0) + 0.5 * np.sin(np.arange(len(index)) / 10.0)
+    with pytest.raises(InsufficientDataError) as info:
+        partition_nighttime(index, nee, filled, flat, flat, night)
+    message = str(info.value)
+    usable = int((night & np.isfinite(nee)).sum())
+    assert "year 2021" in message
+    assert f"{usable} usable night records" in message
+    assert "windows tried" in message
+    assert "temperature range below 5 K" in message
+    assert "e0_fallback" in message
+
+
+def test_fallback_is_flagged(rng):
+    """With e0_fallback set, a year without acceptable windows uses it and says so."""
+    index, nee, filled, _, night, _ = _synthetic(rng, end="2021-03-31 23:30")
+    flat = np.full(len(index), 8.0) + 0.5 * np.sin(np.arange(len(index)) / 10.0)
+    result = partition_nighttime(index, nee, filled, flat, flat, night, e0_fallback=210.0)
+    row = result.e0_annual.loc[2021]
+    assert row["source"] == "fallback"
+    assert row["e0"] == 210.0 and np.isnan(row["e0_se"])
+    assert row["windows_accepted"] == 0 and row["windows_tried"] > 0
+    np.testing.assert_array_equal(result.e0, 210.0)
+    assert np.isfinite(result.reco).all()
+
+
+def test_annual_e0_plain_mean_of_best_windows():
+    """The year's E0 is the plain mean of the accepted windows with the smallest e0_se."""
+    start = pd.Timestamp("2021-03-01")
+    windows = pd.DataFrame({
+        "window_start": [start + pd.Timedelta(days=5 * k) for k in range(5)],
+        "e0": [100.0, 200.0, 300.0, 400.0, 999.0],
+        "e0_se": [5.0, 1.0, 2.0, 3.0, 0.5],
+        "accepted": [True, True, True, True, False],
+    })
+    windows["window_end"] = windows["window_start"] + pd.Timedelta(days=15)
+    windows["year"] = 2021
+    windows["points"] = 100
+    windows["reason"] = ["", "", "", "", "E0 outside 30-450 K"]
+    annual = annual_e0(windows)
+    assert annual.loc[2021, "e0"] == pytest.approx((200.0 + 300.0 + 400.0) / 3)
+    assert annual.loc[2021, "e0_se"] == pytest.approx(np.sqrt(1 + 4 + 9) / 3)
+    assert annual.loc[2021, "windows_accepted"] == 4
+    assert annual.loc[2021, "windows_used"] == 3
+    assert annual.index.name == "year"
+    one = annual_e0(windows, e0_best_windows=1)
+    assert one.loc[2021, "e0"] == 200.0
+
+
+# --------------------------------------------------------------------------- #
+# Rref windows against statsmodels
+# --------------------------------------------------------------------------- #
+def test_rref_window_matches_statsmodels_ols(rng):
+    """Rref with E0 fixed equals a no-intercept OLS of NEE on the Lloyd–Taylor shape."""
+    index, nee, _, temperature, night, _ = _synthetic(rng, end="2021-01-31 23:30")
+    e0 = np.full(len(index), 230.0)
+    windows = fit_rref_windows(index, nee, temperature, night, e0)
+    window = windows.iloc[3]
+    inside = (night & np.isfinite(nee) & (index >= window["window_start"])
+              & (index < window["window_end"]))
+    shape = _eq11(temperature[inside], 1.0, 230.0)
+    # statsmodels: sm.OLS(nee, shape).fit() (no constant), .params[0] and .bse[0]
+    fit = sm.OLS(nee[inside], shape).fit()
+    message = f"statsmodels {statsmodels.__version__}"
+    assert window["rref"] == pytest.approx(fit.params[0], rel=1e-10), message
+    assert window["rref_se"] == pytest.approx(fit.bse[0], rel=1e-8), message
+    assert window["points"] == inside.sum()
+    assert window["e0"] == 230.0
+
+
+def test_rref_windows_drop_sparse_and_negative(rng):
+    """Windows with too few points or negative Rref are dropped; the rest kept."""
+    index, nee, _, temperature, night, _ = _synthetic(rng, end="2021-01-31 23:30")
+    nee = nee.copy()
+    first_days = index < pd.Timestamp("2021-01-07 12:00")
+    nee[first_days] = np.nan                      # windows 1-2: no points
+    middle = (index >= pd.Timestamp("2021-01-15 12:00")) & (index < pd.Timestamp(
+        "2021-01-19 12:00"))
+    nee[middle] = -np.abs(nee[middle])            # a negative-Rref window
+    windows = fit_rref_windows(index, nee, temperature, night, np.full(len(index), 200.0))
+    assert (windows["points"] >= 2).all() and (windows["rref"] >= 0).all()
+    assert pd.Timestamp("2021-01-15 12:00") not in set(windows["window_start"])
+    assert windows["window_start"].iloc[0] >= pd.Timestamp("2021-01-03 12:00")
+
+
+def test_rref_interpolation_linear_and_constant_beyond_ends():
+    """Rref is linear in time between centres and constant before the first and after the last."""
+    index = pd.date_range("2021-01-01", "2021-01-12", freq="30min")
+    windows = pd.DataFrame({"window_centre": pd.to_datetime(["2021-01-03", "2021-01-07"]),
+                            "rref": [1.0, 3.0]})
+    rref = rref_per_record(index, windows)
+    series = pd.Series(rref, index=index)
+    assert series["2021-01-01 00:00"] == 1.0
+    assert series["2021-01-05 00:00"] == pytest.approx(2.0)
+    assert series["2021-01-04 00:00"] == pytest.approx(1.5)
+    assert series["2021-01-11 12:00"] == 3.0
+
+
+# --------------------------------------------------------------------------- #
+# Bad input
+# --------------------------------------------------------------------------- #
+def test_all_nan_input_raises(rng):
+    """No measured night NEE at all: a clear InsufficientDataError."""
+    index, _, filled, temperature, night, _ = _synthetic(rng, end="2021-02-28 23:30")
+    empty = np.full(len(index), np.nan)
+    with pytest.raises(InsufficientDataError, match="no usable night record"):
+        partition_nighttime(index, empty, filled, temperature, temperature, night)
+
+
+def test_near_empty_input_raises(rng):
+    """A handful of night records: an InsufficientDataError naming the year."""
+    index, nee, filled, temperature, night, _ = _synthetic(rng, end="2021-02-28 23:30")
+    sparse = np.full(len(index), np.nan)
+    keep = np.flatnonzero(np.isfinite(nee))[:5]
+    sparse[keep] = nee[keep]
+    with pytest.raises(InsufficientDataError, match="year 2021.*5 usable night records"):
+        partition_nighttime(index, sparse, filled, temperature, temperature, night)
+
+
+def test_empty_index_raises():
+    """An empty record is an InsufficientDataError."""
+    with pytest.raises(InsufficientDataError, match="empty"):
+        fit_e0_windows(pd.DatetimeIndex([]), [], [], [])
+
+
+def test_kelvin_temperature_rejected(rng):
+    """Temperatures in kelvin are caught with a hint instead of a silent nonsense fit."""
+    index, nee, filled, temperature, night, _ = _synthetic(rng, end="2021-01-31 23:30")
+    with pytest.raises(ImplausibleValueError, match="temperature_measured.*kelvin"):
+        partition_nighttime(index, nee, filled, temperature + 273.15, temperature, night)
+
+
+def test_misaligned_input_raises(rng):
+    """An array of the wrong length names the argument."""
+    index, nee, filled, temperature, night, _ = _synthetic(rng, end="2021-01-31 23:30")
+    with pytest.raises(FluxpartError, match="nee_filled: expected"):
+        partition_nighttime(index, nee, filled[:-1], temperature, temperature, night)
+
+
+def test_night_mask_with_missing_values_raises(rng):
+    """A night mask with missing values is an error naming the row."""
+    index, nee, filled, temperature, night, _ = _synthetic(rng, end="2021-01-31 23:30")
+    mask = pd.Series(night, index=index, dtype="boolean")
+    mask.iloc[7] = pd.NA
+    with pytest.raises(FluxpartError, match="is_night: missing value at row 7"):
+        partition_nighttime(index, nee, filled, temperature, temperature, mask)
+
+
+@pytest.mark.parametrize(("setting", "value"), [("e0_min_points", 0),
+                                                ("e0_bounds", (450.0, 30.0)),
+                                                ("e0_window_days", -1.0),
+                                                ("rref_min_points", 1.5),
+                                                ("respiration_driver", "tsurface")])
+def test_bad_settings_raise_config_error(rng, setting, value):
+    """Invalid settings give a ConfigError naming the setting."""
+    index, nee, filled, temperature, night, _ = _synthetic(rng, end="2021-01-31 23:30")
+    with pytest.raises(ConfigError, match=setting):
+        partition_nighttime(index, nee, filled, temperature, temperature, night,
+                            **{setting: value})

@@ -1,0 +1,188 @@
+"""Pipeline wiring, the public contract, determinism and known-truth recovery on the demo."""
+
+import hashlib
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import fluxpart
+from fluxpart import Config, demo
+from fluxpart.budget import flux_to_carbon
+from fluxpart.errors import ConfigError, InsufficientDataError, MissingColumnError, SpacingError
+from fluxpart.pipeline import process
+from fluxpart.schema import describe
+
+TIMESERIES_CONTRACT = ("nee_filled", "gpp_nighttime", "reco_nighttime", "gpp_daytime",
+                       "reco_daytime", "nee_fill_quality")
+ANNUAL_CONTRACT = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime",
+                   "ustar_threshold")
+
+
+def _truth_sums(truth, interval_minutes=30):
+    carbon = flux_to_carbon(truth[["gpp", "reco", "nee"]].to_numpy(), interval_minutes)
+    return pd.DataFrame(carbon, index=truth.index, columns=["gpp", "reco", "nee"]).groupby(
+        truth.index.year).sum()
+
+
+@pytest.fixture(scope="module")
+def demo_run():
+    """One demo site-year processed with the default settings."""
+    frame, truth = demo.site_year(seed=0)
+    return frame, truth, process(frame, demo.site())
+
+
+def test_result_honours_the_public_contract(demo_run):
+    """The timeseries and annual tables carry the columns DESIGN.md §4 promises."""
+    frame, _, result = demo_run
+    for column in TIMESERIES_CONTRACT:
+        assert column in result.timeseries.columns
+    for column in ANNUAL_CONTRACT:
+        assert column in result.annual.columns
+    assert result.annual.index.name == "year"
+    assert list(result.annual.index) == [2021]
+    assert result.timeseries.index.equals(frame.index)
+    assert result.timeseries["nee_filled"].notna().all()
+    assert isinstance(result.config, Config) and result.config == Config()
+
+
+def test_every_output_column_has_a_unit(demo_run):
+    """Every column of every output table is described with a unit in the schema."""
+    _, _, result = demo_run
+    for table in ("timeseries", "daily", "monthly", "annual"):
+        frame = getattr(result, table)
+        undescribed = [c for c in frame.columns if describe(table, c) == ("", "")]
+        assert not undescribed, f"{table}: {undescribed}"
+
+
+def test_measured_records_are_kept_as_measured(demo_run):
+    """Where NEE passed screening and the u* filter, the filled series is the measurement."""
+    _, _, result = demo_run
+    ts = result.timeseries
+    measured = ts["nee_fill_quality"] == 0
+    np.testing.assert_array_equal(ts.loc[measured, "nee_filled"], ts.loc[measured, "nee_measured"])
+    assert (ts.loc[ts["nee_low_ustar"], "nee_measured"].isna()).all()
+
+
+def test_nighttime_budget_recovers_the_demo_truth(demo_run):
+    """Known truth: annual nighttime GPP and Reco within 10 %, NEE within 30 g C m-2 (issue 3).
+
+    The demo plants Laplace noise, spikes, a low-u* loss of night flux and ~40 % gaps;
+    with the noise averaged over a year, the remaining error is that of gap filling
+    and of the u* threshold, which 30 g C m-2 bounds.
+    """
+    _, truth, result = demo_run
+    true = _truth_sums(truth).loc[2021]
+    annual = result.annual.loc[2021]
+    assert abs(annual["gpp_nighttime"] / true["gpp"] - 1) < 0.10
+    assert abs(annual["reco_nighttime"] / true["reco"] - 1) < 0.10
+    assert abs(annual["nee"] - true["nee"]) < 30.0
+
+
+def test_daytime_budget_recovers_the_demo_truth(demo_run):
+    """Known truth: annual daytime GPP and Reco within 10 % of the truth (issue 4)."""
+    _, truth, result = demo_run
+    true = _truth_sums(truth).loc[2021]
+    annual = result.annual.loc[2021]
+    assert abs(annual["gpp_daytime"] / true["gpp"] - 1) < 0.10
+    assert abs(annual["reco_daytime"] / true["reco"] - 1) < 0.10
+    # the two methods agree within 10 % of each other (issue 4)
+    assert abs(annual["gpp_daytime"] / annual["gpp_nighttime"] - 1) < 0.10
+
+
+def test_c4_variant_daytime_within_15_percent():
+    """Known truth: the little-saturating C4 crop is still fitted; GPP within 15 % (issue 4)."""
+    frame, truth = demo.site_year(seed=1, variant="c4")
+    result = process(frame, demo.site("c4"), Config(ustar_bootstrap_draws=0))
+    true = _truth_sums(truth).loc[2021]
+    assert abs(result.annual.loc[2021, "gpp_daytime"] / true["gpp"] - 1) < 0.15
+    assert abs(result.annual.loc[2021, "reco_daytime"] / true["reco"] - 1) < 0.15
+
+
+def test_process_is_deterministic_and_leaves_its_input_alone(demo_run):
+    """Same input, config and seed give identical tables; the input frame is not modified."""
+    frame, _, result = demo_run
+    before = frame.copy()
+    again = process(frame, demo.site())
+    pd.testing.assert_frame_equal(frame, before)
+    pd.testing.assert_frame_equal(again.timeseries, result.timeseries)
+    pd.testing.assert_frame_equal(again.annual, result.annual)
+
+
+def test_written_folder_is_byte_identical_across_runs(demo_run, tmp_path):
+    """Two writes of the same result, and of a rerun, give byte-identical files."""
+    frame, _, result = demo_run
+    result.write(tmp_path / "a")
+    process(frame, demo.site()).write(tmp_path / "b")
+    files = sorted(p.name for p in (tmp_path / "a").iterdir())
+    assert "manifest.json" in files and "annual.parquet" in files
+    for name in files:
+        digest_a = hashlib.sha256((tmp_path / "a" / name).read_bytes()).hexdigest()
+        digest_b = hashlib.sha256((tmp_path / "b" / name).read_bytes()).hexdigest()
+        assert digest_a == digest_b, name
+
+
+def test_load_returns_the_written_tables(demo_run, tmp_path):
+    """fluxpart.load gives back the tables, site and settings that were written."""
+    _, _, result = demo_run
+    result.write(tmp_path / "out")
+    again = fluxpart.load(tmp_path / "out")
+    for table in ("timeseries", "daily", "monthly", "annual"):
+        pd.testing.assert_frame_equal(getattr(again, table), getattr(result, table),
+                                      check_freq=False)
+    assert again.site == result.site and again.config == result.config
+    assert set(again.parameters) == set(result.parameters)
+
+
+def test_hourly_records_give_the_same_budget_as_half_hourly():
+    """Hourly records of the same physics give annual sums within a few per cent."""
+    frame, truth = demo.site_year(seed=2, interval_minutes=60)
+    result = process(frame, demo.site(), Config(ustar_bootstrap_draws=0))
+    true = _truth_sums(truth, 60).loc[2021]
+    assert result.timeseries.index.freq is None or result.timeseries.index.freq == "60min"
+    assert abs(result.annual.loc[2021, "gpp_nighttime"] / true["gpp"] - 1) < 0.10
+    assert result.annual.loc[2021, "records_expected"] == 8760
+
+
+def test_two_years_with_a_leap_year():
+    """A two-year record (2023–2024, 2024 a leap year) gives one annual row per year."""
+    frame, _ = demo.site_year(seed=3, year=2023, years=2)
+    result = process(frame, demo.site(), Config(ustar_bootstrap_draws=0))
+    assert list(result.annual.index) == [2023, 2024]
+    assert result.annual.loc[2024, "records_expected"] == 17568
+    assert result.annual["complete"].all()
+
+
+def test_soil_temperature_as_respiration_driver():
+    """respiration_driver = 'tsoil' drives Reco by soil temperature; absent tsoil is an error."""
+    frame, _ = demo.site_year(seed=4)
+    config = Config(respiration_driver="tsoil", ustar_bootstrap_draws=0)
+    result = process(frame, demo.site(), config)
+    assert result.parameters["nighttime_e0_annual"]["e0"].notna().all()
+    with pytest.raises(ConfigError, match="respiration_driver = 'tsoil'"):
+        process(frame.drop(columns="tsoil"), demo.site(), config)
+
+
+def test_bad_frames_are_rejected_with_the_column_or_row_named():
+    """Missing columns, irregular stamps and time zones are named in the error."""
+    frame, _ = demo.site_year(seed=0)
+    with pytest.raises(MissingColumnError, match="'ustar'"):
+        process(frame.drop(columns="ustar"), demo.site())
+    with pytest.raises(SpacingError, match="row 3"):
+        process(frame.drop(frame.index[3]), demo.site())
+    with pytest.raises(SpacingError, match="time zone"):
+        process(frame.tz_localize("UTC"), demo.site())
+
+
+def test_too_little_night_data_fails_clearly_unless_a_fallback_is_chosen():
+    """A year without usable night NEE fails naming e0_fallback; the opt-in fall-back is flagged."""
+    frame, _ = demo.site_year(seed=0)
+    night = (frame["rg"] < 10).to_numpy()
+    keep = np.zeros(len(frame), dtype=bool)
+    keep[np.flatnonzero(night & frame["nee"].notna().to_numpy())[:12]] = True
+    blind = frame.assign(nee=frame["nee"].where(~night | keep))
+    config = Config(ustar_method="fixed")
+    with pytest.raises(InsufficientDataError, match="e0_fallback"):
+        process(blind, demo.site(), config)
+    result = process(blind, demo.site(), Config(ustar_method="fixed", e0_fallback=308.56))
+    assert (result.parameters["nighttime_e0_annual"]["source"] == "fallback").all()
