@@ -12,14 +12,9 @@ import sys
 from pathlib import Path
 
 from .errors import FluxpartError
+from .manifest import CAUTION
 
 __all__ = ["main"]
-
-CAUTION = (
-    "Caution: a tower budget is one line of evidence for carbon-credit quantification, not a "
-    "certified credit. Its uncertainty, representativeness and permanence must be judged under "
-    "the applicable crediting methodology and by accredited verification."
-)
 
 
 def _format_annual(annual) -> str:
@@ -42,9 +37,10 @@ def _command_demo(args) -> int:
     print("\nAnnual budget [g C m-2; NEE < 0 is net uptake]:")
     print(_format_annual(result.annual))
     print("\nError against the demo's known truth [g C m-2]:")
-    print(demo.compare_with_truth(result, truth).to_string(float_format=lambda v: f"{v:9.1f}"))
+    print(demo.compare_with_truth(result.annual, truth).to_string(
+        formatters={"relative_error": "{:+.1%}".format}, float_format=lambda v: f"{v:9.1f}"))
     print(f"\nWrote {out}/ (Parquet tables and manifest.json)")
-    print(CAUTION)
+    print(f"Caution: {CAUTION}")
     return 0
 
 
@@ -59,7 +55,7 @@ def _command_run(args) -> int:
     print("\nAnnual budget [g C m-2; NEE < 0 is net uptake]:")
     print(_format_annual(result.annual))
     print(f"\nWrote {out}/ (Parquet tables and manifest.json)")
-    print(CAUTION)
+    print(f"Caution: {CAUTION}")
     return 0
 
 

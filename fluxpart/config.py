@@ -102,6 +102,12 @@ class Config:
         Step between daytime windows [days]; 2, Lasslop et al. (2010).
     daytime_min_points : int
         Fewest measured daytime records for a window fit; 10, our choice.
+    daytime_k_min_points : int
+        Fewest records above VPD0 = 10 hPa in a window for the VPD coefficient k to
+        be fitted; otherwise k is fixed at 0; 5, our choice.
+    daytime_beta0_max : float
+        Upper bound of the light-saturated assimilation beta0 [µmol m-2 s-1]; 250,
+        Lasslop et al. (2010) (m). Windows reaching it are kept and flagged.
     agreement_margin : float
         Largest relative difference between daytime and nighttime annual GPP (and
         Reco), ``|day - night| / mean``, before the result warns that the methods
@@ -138,6 +144,8 @@ class Config:
     daytime_window_days: float = 4.0
     daytime_window_step_days: float = 2.0
     daytime_min_points: int = 10
+    daytime_k_min_points: int = 5
+    daytime_beta0_max: float = 250.0
     agreement_margin: float = 0.15
 
     def __post_init__(self):
@@ -161,8 +169,14 @@ class Config:
         for key in mapping:
             if key not in names:
                 raise ConfigError(f"{where} {key}: unknown setting{suggest_key(key, names)}")
-        values = {key: tuple(value) if isinstance(value, list) else value
-                  for key, value in mapping.items()}
+        floats = {f.name for f in fields(cls) if f.type in ("float", "float | None")}
+        values = {}
+        for key, value in mapping.items():
+            if isinstance(value, list):
+                value = tuple(value)
+            if key in floats and isinstance(value, int) and not isinstance(value, bool):
+                value = float(value)
+            values[key] = value
         return cls(**values)
 
     @classmethod
@@ -202,9 +216,10 @@ _POSITIVE = ("night_rg_threshold", "rg_tolerance", "tair_tolerance", "vpd_tolera
              "e0_window_days", "e0_window_step_days", "e0_min_temperature_range",
              "e0_max_relative_error", "rref_window_days", "despike_z", "despike_block_days",
              "gapfill_max_window_days", "daytime_window_days", "daytime_window_step_days",
-             "agreement_margin")
+             "agreement_margin", "daytime_beta0_max")
 _NON_NEGATIVE = ("ustar_threshold", "ustar_min_threshold", "rg_margin", "rg_relative_margin")
-_COUNTS = ("e0_min_points", "e0_best_windows", "rref_min_points", "daytime_min_points")
+_COUNTS = ("e0_min_points", "e0_best_windows", "rref_min_points", "daytime_min_points",
+           "daytime_k_min_points")
 _PERCENTILES = (5, 16, 50, 84, 95)
 
 
@@ -234,9 +249,11 @@ def _check(config: Config) -> None:
         raise ConfigError(f"[processing] ustar_bootstrap_draws = {draws!r}: expected a whole "
                           "number >= 0")
     scenarios = config.ustar_scenarios
-    if not isinstance(scenarios, tuple) or any(p not in _PERCENTILES for p in scenarios):
+    if (not isinstance(scenarios, tuple) or len(set(scenarios)) != len(scenarios)
+            or any(not isinstance(p, int) or isinstance(p, bool) or p not in _PERCENTILES
+                   for p in scenarios)):
         raise ConfigError(f"[processing] ustar_scenarios = {scenarios!r}: expected a list of "
-                          f"bootstrap percentiles from {list(_PERCENTILES)}")
+                          f"distinct whole-number bootstrap percentiles from {list(_PERCENTILES)}")
     low_high = config.e0_bounds
     if (not isinstance(low_high, tuple) or len(low_high) != 2
             or not all(_is_number(v) for v in low_high) or not 0 < low_high[0] < low_high[1]):

@@ -28,7 +28,7 @@ from .site import Site
 from .solar import potential_radiation
 from .variables import vpd_from_rh
 
-__all__ = ["SITE", "site", "site_year", "write_example"]
+__all__ = ["SITE", "compare_with_truth", "site", "site_year", "write_example"]
 
 #: The fictional Quillmoor grassland (C3); see the module docstring.
 SITE = Site(name="Quillmoor grassland (fictional)", latitude=49.3, longitude=10.2,
@@ -509,3 +509,44 @@ seed = 0
 """
     _write_atomic(toml_path, toml)
     return toml_path
+
+
+def compare_with_truth(annual: pd.DataFrame, truth: pd.DataFrame,
+                       interval_minutes: int | None = None) -> pd.DataFrame:
+    """Annual sums of a result beside the demo's true sums.
+
+    Parameters
+    ----------
+    annual : pandas.DataFrame
+        ``Result.annual`` [g C m-2 per year], indexed by year.
+    truth : pandas.DataFrame
+        The truth returned by :func:`site_year` (columns ``gpp``, ``reco``, ``nee``
+        [µmol m-2 s-1]).
+    interval_minutes : int, optional
+        Record length [min]; inferred from the truth's index when omitted.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per year and estimate (``nee``, ``gpp_nighttime``, ...): ``estimate``,
+        ``truth`` and ``error`` (estimate - truth) [g C m-2] and ``relative_error`` [1].
+    """
+    from .budget import flux_to_carbon
+
+    if interval_minutes is None:
+        interval_minutes = int((truth.index[1] - truth.index[0]) / pd.Timedelta(minutes=1))
+    carbon = pd.DataFrame(flux_to_carbon(truth[["gpp", "reco", "nee"]].to_numpy(),
+                                         interval_minutes),
+                          index=truth.index, columns=["gpp", "reco", "nee"])
+    true = carbon.groupby(truth.index.year).sum()
+    rows = []
+    for year in annual.index:
+        for column in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
+            if column not in annual.columns:
+                continue
+            reference = true.loc[year, column.split("_")[0]]
+            estimate = annual.loc[year, column]
+            rows.append({"year": year, "estimate_of": column, "estimate": estimate,
+                         "truth": reference, "error": estimate - reference,
+                         "relative_error": (estimate - reference) / abs(reference)})
+    return pd.DataFrame(rows).set_index(["year", "estimate_of"])

@@ -166,7 +166,10 @@ def _records_per_day(index) -> tuple[int, int]:
 def _as_values(values, name: str, index) -> np.ndarray:
     """Return ``values`` as a new float64 vector, checked against ``index``."""
     try:
-        array = np.array(values, dtype=np.float64)
+        if isinstance(values, (pd.Series, pd.Index)):
+            array = values.to_numpy(dtype=np.float64, na_value=np.nan, copy=True)
+        else:
+            array = np.array(values, dtype=np.float64)
     except (TypeError, ValueError):
         raise FluxpartError(f"{name}: expected numbers (NaN where missing)") from None
     if array.ndim != 1:
@@ -346,8 +349,11 @@ def _block_records(n_gaps, gap_span, half_width):
     density = n_gaps / max(gap_span, 1)
     records = int(_BLOCK_RECORDS * np.sqrt(_BLOCK_DENSITY / max(density, 1e-6)))
     records = max(1, min(records, _MAX_BLOCK_ELEMENTS // max(half_width, 1)))
-    while records > 1 and records * (records + 2 * half_width) * min(density, 1.0) \
-            > _MAX_BLOCK_ELEMENTS:
+    # Expected (gaps × window) elements within the cap, and never above 8 times it
+    # however the gaps cluster.
+    while records > 1 and (
+            records * (records + 2 * half_width) * min(density, 1.0) > _MAX_BLOCK_ELEMENTS
+            or records * (records + 2 * half_width) > 8 * _MAX_BLOCK_ELEMENTS):
         records //= 2
     return records
 
@@ -429,7 +435,6 @@ def _diurnal_course_pass(values, measured, gaps, half_width_days, per_day, diurn
         np.clip(where, 0, n - 1, out=where)
         ok = inside & measured[where]
         n_ok = np.count_nonzero(ok, axis=1)
-        found = n_ok > 0
         picked = np.where(ok, values[where], 0.0)
         with np.errstate(invalid="ignore", divide="ignore"):
             chunk_mean = picked.sum(axis=1) / n_ok

@@ -105,7 +105,7 @@ def write_result(result, directory) -> Path:
         }
         text = json.dumps(manifest, indent=2, sort_keys=True, ensure_ascii=False) + "\n"
         directory.mkdir(parents=True, exist_ok=True)
-        for name, entry in entries.items():
+        for entry in entries.values():
             (staging / entry["file"]).replace(directory / entry["file"])
         atomic_write_bytes(directory / "manifest.json", text.encode("utf-8"))
     finally:

@@ -23,7 +23,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from . import budget, gapfill, screening, solar, ustar
+from . import agreement, budget, gapfill, screening, solar, ustar
 from .config import Config
 from .errors import ConfigError, FluxpartError, MissingColumnError, SpacingError
 from .partition import daytime, nighttime
@@ -32,6 +32,9 @@ from .variables import REQUIRED, VARIABLES
 
 __all__ = ["Result", "process", "process_site_config"]
 
+_BUDGET_FLUXES = {"nee_filled": "nee", "gpp_nighttime": "gpp_nighttime",
+                  "reco_nighttime": "reco_nighttime", "gpp_daytime": "gpp_daytime",
+                  "reco_daytime": "reco_daytime"}
 _REASON_LOW_USTAR = {name: code for code, name in screening.REASON_CODES.items()}["low_ustar"]
 
 
@@ -196,7 +199,8 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
         frame.index, nee_measured, filled_drivers["rg_filled"].to_numpy(),
         filled_drivers["vpd_filled"].to_numpy(), temperature_filled, is_night, night.e0,
         window_days=config.daytime_window_days, window_step_days=config.daytime_window_step_days,
-        min_points=config.daytime_min_points)
+        min_points=config.daytime_min_points, k_min_points=config.daytime_k_min_points,
+        beta0_max=config.daytime_beta0_max)
     return too_calm, nee_measured, filled, night, day
 
 
@@ -286,8 +290,12 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                       "reco_daytime": day.reco, "gpp_daytime": day.gpp}, index=frame.index),
     ], axis=1)
 
-    budgets = budget.aggregate(timeseries, interval)
-    annual = budgets.annual.assign(ustar_threshold=central.reindex(budgets.annual.index))
+    budgets = budget.aggregate(timeseries, interval, fluxes=_BUDGET_FLUXES)
+    daily = agreement.method_agreement(budgets.daily, config.agreement_margin)
+    monthly = agreement.method_agreement(budgets.monthly, config.agreement_margin)
+    annual = agreement.method_agreement(budgets.annual, config.agreement_margin)
+    warnings.extend(agreement.disagreements(annual, config.agreement_margin))
+    annual = annual.assign(ustar_threshold=central.reindex(annual.index).to_numpy())
     annual = _scenario_spread(annual, outcomes, frame.index, interval)
     counts = screens.counts.copy()
     counts[screening.REASON_CODES[_REASON_LOW_USTAR]] = int((reason == _REASON_LOW_USTAR).sum())
@@ -298,8 +306,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                             f"({int(row['records'])} of {int(row['records_expected'])} records): "
                             "its sums are not annual totals and are not scaled up")
     return Result(
-        site=site, config=config, timeseries=timeseries, daily=budgets.daily,
-        monthly=budgets.monthly, annual=annual, ustar=ustar_table,
+        site=site, config=config, timeseries=timeseries, daily=daily,
+        monthly=monthly, annual=annual, ustar=ustar_table,
         parameters={"nighttime_e0": night.e0_windows, "nighttime_e0_annual": night.e0_annual,
                     "nighttime_rref": night.rref_windows, "daytime": day.parameters,
                     "ustar_bootstrap": ustar_draws},

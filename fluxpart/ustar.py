@@ -196,8 +196,9 @@ def assign_seasons(index, latitude) -> pd.DataFrame:
     Returns
     -------
     pandas.DataFrame
-        Same index; ``year`` (int64, the calendar year of the record) and
-        ``season`` (one of :data:`SEASONS`).
+        Same index; ``year`` (int64, the calendar year of the record),
+        ``season`` (one of :data:`SEASONS`) and ``months`` (the season's
+        months by initial, e.g. ``"DJF"``).
 
     Raises
     ------
@@ -218,11 +219,15 @@ def assign_seasons(index, latitude) -> pd.DataFrame:
         raise ConfigError(f"[site] latitude = {latitude!r}: expected a number of degrees in "
                           "[-90, 90]")
     position = _NORTH[np.asarray(index.month)]
+    months = _NORTH_MONTHS
     if latitude < 0:
         position = (position + 2) % 4
-    return pd.DataFrame({"year": np.asarray(index.year, dtype=np.int64),
-                         "season": np.asarray(SEASONS, dtype=object)[position]},
-                        index=index).astype({"season": "str"})
+        months = _SOUTH_MONTHS
+    season = np.asarray(SEASONS, dtype=object)[position]
+    return pd.DataFrame({"year": np.asarray(index.year, dtype=np.int64), "season": season,
+                         "months": np.asarray([months[s] for s in SEASONS],
+                                              dtype=object)[position]},
+                        index=index).astype({"season": "str", "months": "str"})
 
 
 def moving_point_threshold(nee, ustar, tair, is_night, seasons, *, temperature_classes=6,
@@ -352,6 +357,10 @@ def change_point_threshold(nee, ustar, is_night, seasons, *, tair=None, temperat
         The change point is searched among the bin means ``x_k`` with
         ``edge_bins <= k < bins - edge_bins`` (0-based), so that each phase
         has at least `edge_bins` bins; default 3, our choice.
+    min_significant_share : float, optional
+        Share of a season's (a year's) strata that must have a significant
+        change point for a seasonal (annual) threshold [1]; default 0.25, our
+        choice (see Notes).
     min_threshold : float, optional
         Floor of the reported thresholds [m s-1]; default 0.1 m s-1 (m).
     min_records_per_bin : int, optional
@@ -386,19 +395,31 @@ def change_point_threshold(nee, ustar, is_night, seasons, *, tair=None, temperat
 
     (NEE linear in u* below ``c`` and constant, ``a + b c``, above it) is fitted
     by ordinary least squares; the change point is the candidate with the
-    smallest residual sum of squares ``SSE_2``. Its significance is tested
-    against the single line ``y = a + b x`` (``SSE_1``) by
+    smallest residual sum of squares. The operational model does not contain
+    the single line ``y = a + b x``, so its significance is tested, as the
+    two-phase regression tests of Lund & Reeves (2002) and Wang (2003), with
+    the continuous two-phase ("diagnostic") model that does,
+    ``y = a + b1 x + b2 max(x - c, 0)``:
 
-        ``F = (SSE_1 - SSE_2) / (SSE_2 / (n - 3))``,
+        ``F(c) = (SSE_1 - SSE_3(c)) / (SSE_3(c) / (n - 4))``,
 
-    maximised over the candidates (``F_max``). ``F_max`` does not follow the
-    F distribution because ``c`` is chosen from the data; its critical value
-    at `alpha` is estimated by Monte Carlo simulation of the null hypothesis,
-    as Lund & Reeves (2002) and Wang (2003) derived their tables, see
+    ``SSE_1`` of the line, ``SSE_3`` of the diagnostic model, ``n`` bins and
+    four fitted parameters counting ``c``; ``F_max`` is its maximum over the
+    candidates. ``F_max`` does not follow the F distribution because ``c`` is
+    chosen from the data; its critical value at `alpha` is estimated by
+    Monte Carlo simulation of the null hypothesis (a straight line plus
+    noise), as Lund & Reeves and Wang derived their tables, see
     :func:`change_point_critical_value` (we do not use their tabulated
-    values). A change point counts where ``F_max`` exceeds the critical value
-    and the slope below it is positive (NEE increasing with u*, the
-    signature of flux loss at low turbulence).
+    values). A stratum's change point counts where ``F_max`` exceeds the
+    critical value, the operational slope ``b`` is positive (NEE rising with
+    u*, the signature of flux loss at low turbulence) and the slope falls at
+    the change point (``b2 < 0``).
+
+    Because each stratum is tested at level `alpha`, a few strata pass by
+    chance even without any threshold; a season (and a year) therefore gets
+    a threshold only where at least `min_significant_share` of its strata
+    with enough data have a significant change point (our rule; default
+    0.25, which a 5 % false-positive rate in 6 or 24 strata rarely reaches).
 
     Seasonal threshold: median of the season's significant change points;
     annual: median of the year's significant change points over all seasons
@@ -597,9 +618,11 @@ def change_point_critical_value(bins=50, alpha=0.05, edge_bins=3) -> float:
     -----
     Monte Carlo estimate (our own, in the manner of Lund & Reeves 2002 and
     Wang 2003): 10 000 samples of ``y = e``, ``e`` standard normal, at
-    equally spaced ``x`` (under the null ``F_max`` does not depend on the
-    line's intercept, slope or noise level); for each, ``F_max`` over the
-    same candidates as :func:`change_point_threshold`. The generator has a
+    equally spaced ``x``; for each, ``F_max`` of the diagnostic two-phase
+    model against the line over the same candidates as
+    :func:`change_point_threshold`. Because that model contains the line,
+    under the null ``F_max`` does not depend on the line's intercept, slope
+    or noise level. The generator has a
     fixed seed, so the value is the same on every run; its Monte Carlo error
     at ``alpha = 0.05`` is about 2 %. Equally spaced ``x`` is an
     approximation for the unequally spaced bin means of u*.
@@ -649,26 +672,19 @@ def _night_data(nee, ustar, tair, is_night, seasons, *, need_tair) -> _NightData
         raise FluxpartError(f"season {bad!r} is not one of {', '.join(SEASONS)}")
     codes = season_position.codes.astype(np.int64)
     keys = np.unique(years * 4 + codes) if len(years) else np.array([], dtype=np.int64)
-    months = _month_names(seasons)
+    record_group = np.searchsorted(keys, years * 4 + codes)
     groups = pd.DataFrame({"year": keys // 4, "season": np.asarray(SEASONS)[keys % 4]})
-    groups["months"] = [months.get(season, "") for season in groups["season"]]
+    if "months" in seasons.columns:
+        first = np.unique(record_group, return_index=True)[1]
+        groups["months"] = np.asarray(seasons["months"], dtype=object)[first]
+    else:
+        groups["months"] = ""
     groups = groups.astype({"season": "str", "months": "str"})
 
-    record_group = np.searchsorted(keys, years * 4 + codes)
     selected = np.flatnonzero(usable)
     order = selected[np.argsort(record_group[selected], kind="stable")]
     return _NightData(nee=arrays["nee"][order], ustar=arrays["ustar"][order],
                       tair=temperature[order], group=record_group[order], groups=groups)
-
-
-def _month_names(seasons: pd.DataFrame) -> dict:
-    """Season name -> month letters, from the hemisphere the seasons imply."""
-    if not isinstance(seasons.index, pd.DatetimeIndex) or len(seasons) == 0:
-        return dict(_NORTH_MONTHS)
-    months = np.asarray(seasons.index.month)
-    winter = np.asarray(seasons["season"]) == "winter"
-    southern = winter.any() and np.isin(months[winter], (6, 7, 8)).all()
-    return dict(_SOUTH_MONTHS if southern else _NORTH_MONTHS)
 
 
 def _class_positions(values, group, n_groups, classes):

@@ -84,11 +84,11 @@ _TEMPERATURE = {"°C": (1.0, 0.0), "degC": (1.0, 0.0), "C": (1.0, 0.0),
 _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
     "nee": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),
             "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0)},
-    "rg": {"W m-2": (1.0, 0.0)},
+    "rg": {"W m-2": (1.0, 0.0), "W/m2": (1.0, 0.0)},
     "tair": _TEMPERATURE,
     "tsoil": _TEMPERATURE,
-    "vpd": {"hPa": (1.0, 0.0), "kPa": (10.0, 0.0), "Pa": (0.01, 0.0)},
-    "ustar": {"m s-1": (1.0, 0.0)},
+    "vpd": {"hPa": (1.0, 0.0), "mbar": (1.0, 0.0), "kPa": (10.0, 0.0), "Pa": (0.01, 0.0)},
+    "ustar": {"m s-1": (1.0, 0.0), "m/s": (1.0, 0.0)},
     "rh": {"%": (1.0, 0.0), "fraction": (100.0, 0.0), "1": (100.0, 0.0)},
     "nee_flag": {"1": (1.0, 0.0)},
 }
@@ -183,12 +183,12 @@ def vpd_from_rh(rh, tair):
     -------
     numpy.ndarray
         Vapour pressure deficit [hPa], ``es(T) (1 - rh/100)`` with `es` from
-        :func:`saturation_vapour_pressure`; humidity above 100 % gives 0.
+        :func:`saturation_vapour_pressure`; humidity above 100 % gives 0 and below 0 % is taken as 0 %.
 
     References
     ----------
     Alduchov, O. A. & Eskridge, R. E. (1996). Journal of Applied Meteorology
     35:601–609.
     """
-    rh = np.clip(np.asarray(rh, dtype=float), None, 100.0)
+    rh = np.clip(np.asarray(rh, dtype=float), 0.0, 100.0)
     return saturation_vapour_pressure(tair) * (1.0 - rh / 100.0)

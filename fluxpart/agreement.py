@@ -1,0 +1,72 @@
+"""Agreement of the two partitioning methods (daytime vs nighttime GPP and Reco).
+
+The nighttime (Reichstein et al. 2005) and daytime (Lasslop et al. 2010) methods
+rest on different data (night NEE vs day NEE) and assumptions; their difference
+is one part of the uncertainty of GPP and Reco, and a large difference is a sign
+that one of them is not fit for the site-year.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+__all__ = ["disagreements", "method_agreement"]
+
+_FLUXES = ("gpp", "reco")
+
+
+def method_agreement(budget: pd.DataFrame, margin: float = 0.15) -> pd.DataFrame:
+    """Add the daytime-minus-nighttime differences to a budget table.
+
+    Parameters
+    ----------
+    budget : pandas.DataFrame
+        A daily, monthly or annual budget with ``gpp_nighttime``, ``gpp_daytime``,
+        ``reco_nighttime`` and ``reco_daytime`` [g C m-2 per period].
+    margin : float, optional
+        Largest accepted relative difference ``|day - night| / mean(day, night)``
+        [1]; default 0.15 (see :class:`fluxpart.Config` ``agreement_margin``).
+
+    Returns
+    -------
+    pandas.DataFrame
+        A copy with ``gpp_method_difference`` and ``reco_method_difference``
+        [g C m-2] (daytime - nighttime), ``gpp_relative_difference`` and
+        ``reco_relative_difference`` [1], and ``methods_agree`` (bool: both relative
+        differences within `margin`; False where either is undefined).
+
+    References
+    ----------
+    Lasslop, G. et al. (2010). Separation of net ecosystem exchange into
+    assimilation and respiration using a light response curve approach: critical
+    issues and global evaluation. Global Change Biology 16:187–208.
+    doi:10.1111/j.1365-2486.2009.02041.x
+    """
+    out = budget.copy()
+    agree = np.ones(len(out), dtype=bool)
+    for flux in _FLUXES:
+        day = out[f"{flux}_daytime"].to_numpy(dtype=float)
+        night = out[f"{flux}_nighttime"].to_numpy(dtype=float)
+        difference = day - night
+        mean = 0.5 * (day + night)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            relative = np.where(np.abs(mean) > 0, difference / np.abs(mean), np.nan)
+        out[f"{flux}_method_difference"] = difference
+        out[f"{flux}_relative_difference"] = relative
+        agree &= np.abs(relative) <= margin
+    out["methods_agree"] = agree
+    return out
+
+
+def disagreements(annual: pd.DataFrame, margin: float) -> list[str]:
+    """Warnings for the years whose two methods differ by more than `margin`."""
+    messages = []
+    for year, row in annual.iterrows():
+        if row["methods_agree"]:
+            continue
+        parts = [f"{flux.upper()} daytime - nighttime = {row[f'{flux}_method_difference']:+.0f} "
+                 f"g C m-2 ({row[f'{flux}_relative_difference']:+.0%})" for flux in _FLUXES]
+        messages.append(f"{year}: the daytime and nighttime partitionings disagree by more than "
+                        f"agreement_margin = {margin:.0%}: {'; '.join(parts)}")
+    return messages

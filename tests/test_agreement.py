@@ -1,0 +1,30 @@
+"""Daytime vs nighttime agreement diagnostics."""
+
+import numpy as np
+import pandas as pd
+
+from fluxpart.agreement import disagreements, method_agreement
+
+
+def _annual(gpp_day, gpp_night, reco_day, reco_night):
+    return pd.DataFrame({"gpp_daytime": gpp_day, "gpp_nighttime": gpp_night,
+                         "reco_daytime": reco_day, "reco_nighttime": reco_night},
+                        index=pd.Index([2020, 2021], name="year"))
+
+
+def test_differences_and_flags():
+    """Differences are daytime - nighttime; relative to the mean of both; flagged beyond the margin."""
+    table = method_agreement(_annual([1100.0, 1300.0], [1000.0, 1000.0],
+                                     [900.0, 800.0], [900.0, 800.0]), margin=0.15)
+    np.testing.assert_allclose(table["gpp_method_difference"], [100.0, 300.0])
+    np.testing.assert_allclose(table["gpp_relative_difference"], [100 / 1050, 300 / 1150])
+    np.testing.assert_allclose(table["reco_relative_difference"], [0.0, 0.0])
+    assert table["methods_agree"].tolist() == [True, False]
+    messages = disagreements(table, 0.15)
+    assert len(messages) == 1 and messages[0].startswith("2021") and "+300" in messages[0]
+
+
+def test_undefined_difference_does_not_count_as_agreement():
+    """A NaN sum (e.g. unfilled NEE) never counts as agreement."""
+    table = method_agreement(_annual([np.nan, 1.0], [1.0, 1.0], [1.0, 1.0], [1.0, 1.0]))
+    assert table["methods_agree"].tolist() == [False, True]

@@ -1,0 +1,69 @@
+"""The command line: demo, run, check; errors as one line with exit status 2."""
+
+import json
+import shutil
+import subprocess
+import sys
+from pathlib import Path
+
+import pandas as pd
+import pytest
+
+from fluxpart.cli import main
+from fluxpart.manifest import CAUTION
+
+EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
+
+
+@pytest.fixture
+def example(tmp_path):
+    """A copy of the example site config and its CSV in a temporary folder."""
+    for name in ("quillmoor_grassland.toml", "quillmoor_grassland.csv"):
+        shutil.copy(EXAMPLES / name, tmp_path / name)
+    return tmp_path / "quillmoor_grassland.toml"
+
+
+def test_check_prints_the_coverage_table(example, capsys):
+    """`fluxpart check` on the example prints a per-variable coverage table and exits 0."""
+    assert main(["check", str(example)]) == 0
+    out = capsys.readouterr().out
+    assert "coverage" in out and "longest gap" in out
+    for name in ("nee", "rg", "tair", "vpd", "ustar"):
+        assert f"\n{name} " in out
+
+
+def test_run_writes_the_result_folder(example, tmp_path, capsys):
+    """`fluxpart run` writes every table and a manifest that records the input's SHA-256."""
+    out_dir = tmp_path / "out"
+    assert main(["run", str(example), "--out", str(out_dir)]) == 0
+    printed = capsys.readouterr().out
+    assert "Annual budget" in printed and CAUTION.split(".")[0] in printed.replace("\n", " ")
+    manifest = json.loads((out_dir / "manifest.json").read_text())
+    assert len(manifest["provenance"]["input"]["sha256"]) == 64
+    annual = pd.read_parquet(out_dir / "annual.parquet")
+    assert {"nee", "gpp_nighttime", "gpp_daytime", "ustar_threshold"} <= set(annual.columns)
+
+
+def test_bad_config_is_one_clear_error_line(example, capsys):
+    """An unknown setting exits with status 2 and names the key and the nearest valid one."""
+    text = example.read_text() + "\nustar_treshold = 0.2\n"
+    example.write_text(text.replace("[processing]", "[processing]", 1))
+    status = main(["run", str(example)])
+    err = capsys.readouterr().err
+    assert status == 2
+    assert "ustar_treshold" in err and "ustar_threshold" in err
+    assert "Traceback" not in err
+
+
+def test_missing_config_file_is_named(tmp_path, capsys):
+    """A config path that does not exist is named in the error."""
+    assert main(["check", str(tmp_path / "nowhere.toml")]) == 2
+    assert "nowhere.toml" in capsys.readouterr().err
+
+
+def test_module_entry_point_runs():
+    """`python -m fluxpart --help` works (the module entry point)."""
+    completed = subprocess.run([sys.executable, "-m", "fluxpart", "--help"],
+                               capture_output=True, text=True, check=False)
+    assert completed.returncode == 0
+    assert "demo" in completed.stdout and "check" in completed.stdout

@@ -1,0 +1,291 @@
+"""Tests of fluxpart.ustar: seasons, moving point test, change points, bootstrap."""
+
+import inspect
+
+import numpy as np
+import pandas as pd
+import pytest
+import scipy
+import scipy.stats
+import statsmodels
+import statsmodels.api as sm
+from conftest import load_reference
+
+from fluxpart import ustar
+from fluxpart.errors import ConfigError, FluxpartError, TimestampError
+from fluxpart.responses import lloyd_taylor
+from fluxpart.ustar import (
+    assign_seasons,
+    bootstrap_threshold,
+    change_point_critical_value,
+    change_point_threshold,
+    detect_threshold,
+    moving_point_threshold,
+)
+
+REFERENCE = load_reference("ustar")
+PLANTED = 0.25       # planted threshold [m s-1] of the known-truth tests
+TOLERANCE = 0.05     # brief: within ±0.05 m s-1; about two u* class widths near 0.25
+
+
+def _night_record(seed, *, start="2021-01-01", years=1, threshold=PLANTED, damped=True,
+                  coverage=1.0, freq="30min", latitude=48.0):
+    """Invented night NEE (known-truth recovery only).
+
+    Lloyd–Taylor respiration (Rref 3 µmol m-2 s-1, E0 = 308.56 K, Lloyd & Taylor 1994)
+    of a seasonal temperature cycle, damped below the planted u* threshold as
+    measured = true x min(1, u*/threshold), plus Laplace noise (Hollinger &
+    Richardson 2005). Night is 18:00-06:00 local time.
+    """
+    rng = np.random.default_rng(seed)
+    index = pd.date_range(start, pd.Timestamp(start) + pd.DateOffset(years=years), freq=freq,
+                          inclusive="left")
+    hour = np.asarray(index.hour + index.minute / 60.0)
+    day = np.asarray(index.day_of_year)
+    phase = 0.0 if latitude >= 0 else np.pi
+    tair = (10.0 - 10.0 * np.cos(2 * np.pi * (day - 15) / 365.25 + phase)
+            + 3.0 * np.cos(2 * np.pi * (hour - 15) / 24) + rng.normal(0.0, 1.5, len(index)))
+    friction = rng.gamma(3.0, 0.12, len(index))
+    true = lloyd_taylor(tair, 3.0, 308.56)
+    measured = true * np.minimum(1.0, friction / threshold) if damped else true
+    nee = measured + rng.laplace(0.0, 0.5, len(index))
+    nee[rng.random(len(index)) > coverage] = np.nan
+    is_night = (hour < 6) | (hour >= 18)
+    return index, nee, friction, tair, is_night
+
+
+def _run(record, latitude=48.0, **options):
+    index, nee, friction, tair, is_night = record
+    options.setdefault("draws", 20)
+    return detect_threshold(index, nee, friction, tair, is_night, latitude, **options)
+
+
+def test_defaults_are_the_published_settings():
+    """Detector defaults equal the published settings recorded in reference/ustar.toml."""
+    # Source: Reichstein et al. (2005), Papale et al. (2006), Barr et al. (2013) (m).
+    mpt = inspect.signature(moving_point_threshold).parameters
+    for name in ("temperature_classes", "ustar_classes", "plateau_share", "correlation_limit",
+                 "min_threshold"):
+        assert mpt[name].default == REFERENCE["moving_point"][name], name
+    cpd = inspect.signature(change_point_threshold).parameters
+    assert cpd["bins"].default == REFERENCE["change_point"]["bins"]
+    assert cpd["alpha"].default == REFERENCE["change_point"]["alpha"]
+    assert inspect.signature(detect_threshold).parameters["draws"].default == \
+        REFERENCE["moving_point"]["bootstrap_draws"]
+
+
+def test_seasons_north_and_december():
+    """Northern meteorological seasons; December joins the winter of its own year."""
+    # common practice: DJF/MAM/JJA/SON (reference/ustar.toml [seasons]).
+    index = pd.DatetimeIndex(["2021-01-15", "2021-04-01", "2021-07-31", "2021-10-10",
+                              "2021-12-31 23:30"])
+    seasons = assign_seasons(index, 48.1)
+    assert seasons["season"].tolist() == ["winter", "spring", "summer", "autumn", "winter"]
+    assert seasons["year"].tolist() == [2021] * 5
+    for season, months in REFERENCE["seasons"]["north"].items():
+        stamps = pd.DatetimeIndex([f"2022-{m:02d}-10" for m in months])
+        assert set(assign_seasons(stamps, 10.0)["season"]) == {season}
+
+
+def test_southern_hemisphere_seasons_shift_by_six_months():
+    """A southern month has the season of the northern month six months away."""
+    # common practice: seasons of the two hemispheres are six months apart.
+    months = pd.date_range("2022-01-01", periods=12, freq="MS")
+    shifted = months + pd.DateOffset(months=6)
+    south = assign_seasons(months, -34.9)["season"].tolist()
+    north = assign_seasons(shifted, 34.9)["season"].tolist()
+    assert south == north
+    for season, numbers in REFERENCE["seasons"]["south"].items():
+        stamps = pd.DatetimeIndex([f"2022-{m:02d}-10" for m in numbers])
+        assert set(assign_seasons(stamps, -10.0)["season"]) == {season}
+    with pytest.raises(ConfigError, match="latitude"):
+        assign_seasons(months, 95.0)
+
+
+def test_moving_point_recovers_planted_threshold():
+    """Known truth: the moving point test finds the planted threshold within ±0.05 m s-1."""
+    result = _run(_night_record(1), detector="moving_point")
+    annual = result.annual.iloc[0]
+    assert abs(annual["threshold"] - PLANTED) <= TOLERANCE
+    assert annual["seasons_used"] == 4 and annual["reason"] == ""
+    assert (np.abs(result.seasonal["threshold"] - PLANTED) <= TOLERANCE).all()
+    assert annual["threshold_p05"] <= annual["threshold_p50"] <= annual["threshold_p95"]
+
+
+def test_change_point_recovers_planted_threshold():
+    """Known truth: change-point detection finds the planted threshold within ±0.05 m s-1."""
+    result = _run(_night_record(2), detector="change_point")
+    annual = result.annual.iloc[0]
+    assert abs(annual["threshold"] - PLANTED) <= TOLERANCE
+    assert result.strata["significant"].mean() > 0.5
+
+
+def test_no_damping_gives_floor_or_nothing():
+    """Without planted damping: the moving point test stays near its floor, CPD finds none."""
+    record = _night_record(3, damped=False)
+    moving = _run(record, detector="moving_point").annual.iloc[0]
+    # floor 0.1 m s-1 (m); the first-class test passes by chance a class or two late
+    assert REFERENCE["moving_point"]["min_threshold"] <= moving["threshold"] <= 0.15
+    change = _run(record, detector="change_point").annual.iloc[0]
+    assert np.isnan(change["threshold"])
+    assert "significant change point" in change["reason"]
+
+
+def test_hourly_multi_year_southern_leap_year():
+    """Per-year thresholds from hourly records over a leap year, southern hemisphere."""
+    first = _night_record(4, start="2023-01-01", threshold=0.2, freq="60min", latitude=-35.0)
+    second = _night_record(5, start="2024-01-01", threshold=0.35, freq="60min", latitude=-35.0)
+    record = tuple(pd.DatetimeIndex(np.concatenate([first[0], second[0]])) if i == 0
+                   else np.concatenate([first[i], second[i]]) for i in range(5))
+    result = _run(record, latitude=-35.0)
+    annual = result.annual.set_index("year")
+    assert list(annual.index) == [2023, 2024]
+    assert abs(annual.loc[2023, "threshold"] - 0.2) <= TOLERANCE
+    assert abs(annual.loc[2024, "threshold"] - 0.35) <= TOLERANCE
+    summer = result.seasonal[result.seasonal["season"] == "summer"]
+    assert set(summer["months"]) == {"DJF"}
+    per_record = result.threshold_for(record[0])
+    assert per_record[0] == annual.loc[2023, "threshold"]
+    assert per_record[-1] == annual.loc[2024, "threshold"]
+
+
+def test_too_little_night_data_reports_nan_with_reason():
+    """A year with a few weeks of night data reports NaN and why, never an artefact."""
+    index, nee, friction, tair, is_night = _night_record(6)
+    nee = np.where(index < pd.Timestamp("2021-01-08"), nee, np.nan)
+    result = _run((index, nee, friction, tair, is_night))
+    annual = result.annual.iloc[0]
+    assert np.isnan(annual["threshold"]) and "no season" in annual["reason"]
+    assert result.seasonal["reason"].str.contains("too few night records").all()
+    assert result.annual["draws_valid"].iloc[0] == 0
+    assert result.threshold_for(index, fallback=0.2)[0] == 0.2
+    with pytest.raises(ConfigError, match="column"):
+        result.threshold_for(index, column="nope")
+
+
+def test_change_point_statistics_match_statsmodels():
+    """Closed-form two-phase fits equal statsmodels OLS on the same points."""
+    # Reference library: statsmodels (version below), sm.OLS(y, add_constant(...)).fit();
+    # tolerance 1e-9 relative: both are exact least squares in double precision.
+    rng = np.random.default_rng(7)
+    x = np.sort(rng.gamma(3.0, 0.12, 50))
+    y = 4.0 * np.minimum(x, 0.3) + 1.0 + rng.normal(0.0, 0.1, 50)
+    fit = ustar._two_phase_search(x[None, :], y[None, :], 3)
+    change_point = fit["change_point"][0]
+    operational = sm.OLS(y, sm.add_constant(np.minimum(x, change_point))).fit()
+    assert np.allclose([fit["intercept"][0], fit["slope"][0]], operational.params, rtol=1e-9)
+    assert np.isclose(fit["sse"][0], operational.ssr, rtol=1e-9), statsmodels.__version__
+    line = sm.OLS(y, sm.add_constant(x)).fit()
+    assert np.isclose(fit["line_sse"][0], line.ssr, rtol=1e-9)
+    hinge = np.maximum(x - fit["diagnostic_change_point"][0], 0.0)
+    diagnostic = sm.OLS(y, sm.add_constant(np.column_stack((x, hinge)))).fit()
+    assert np.isclose(fit["diagnostic_sse"][0], diagnostic.ssr, rtol=1e-9)
+    assert np.isclose(fit["slope_change"][0], diagnostic.params[2], rtol=1e-9)
+    f_statsmodels = (line.ssr - diagnostic.ssr) / (diagnostic.ssr / (50 - 4))
+    assert np.isclose(fit["f_max"][0], f_statsmodels, rtol=1e-9)
+    # the chosen change point minimises the statsmodels SSE over all candidates
+    candidates = x[3:47]
+    sse = [sm.OLS(y, sm.add_constant(np.minimum(x, c))).fit().ssr for c in candidates]
+    assert change_point == candidates[int(np.argmin(sse))]
+    assert abs(change_point - 0.3) < 0.05
+
+
+def test_change_point_strata_table_uses_statsmodels():
+    """The reported stratum statistics agree with the vectorised search."""
+    index, nee, friction, tair, is_night = _night_record(8)
+    seasons = assign_seasons(index, 48.0)
+    estimate = change_point_threshold(nee, friction, is_night, seasons, tair=tair)
+    strata = estimate.strata
+    assert len(strata) == 4 * 6
+    ok = strata["records"] >= 150
+    assert np.allclose(strata.loc[ok, "plateau"],
+                       strata.loc[ok, "intercept"] + strata.loc[ok, "slope"]
+                       * strata.loc[ok, "change_point"])
+    assert (strata.loc[ok, "sse"] <= strata.loc[ok, "line_sse"] + 1e-9).any()
+    assert (strata.loc[ok, "diagnostic_sse"] <= strata.loc[ok, "line_sse"] + 1e-9).all()
+    assert (strata.loc[strata["significant"], "f_max"] > strata["f_critical"].iloc[0]).all()
+
+
+def test_critical_value_reduces_to_the_f_distribution():
+    """With one candidate change point, F_max is a scaled F(1, n - 3); more candidates raise it."""
+    # With c fixed the diagnostic model is linear with 3 parameters, so
+    # (SSE_1 - SSE_3) / (SSE_3 / (n - 3)) follows F(1, n - 3) under the null; our
+    # statistic divides by n - 4 (c counted as fitted), i.e. F_max = F (n - 4) / (n - 3).
+    # Reference library: scipy.stats.f.ppf(0.95, 1, 8) (SciPy, version below) = 5.32.
+    # Tolerance 6 %: Monte Carlo error of a 95 % quantile from 10 000 samples.
+    single = change_point_critical_value(bins=11, alpha=0.05, edge_bins=5)
+    exact = scipy.stats.f.ppf(0.95, 1, 8) * 7 / 8
+    assert abs(single / exact - 1.0) < 0.06, scipy.__version__
+    many = change_point_critical_value(bins=50, alpha=0.05, edge_bins=3)
+    assert many > scipy.stats.f.ppf(0.95, 1, 46) * 1.2
+    assert change_point_critical_value() == many
+    with pytest.raises(ConfigError, match="alpha"):
+        change_point_critical_value(alpha=1.5)
+
+
+def test_bootstrap_is_reproducible_for_a_seed():
+    """Same seed, same draws; another seed, other draws."""
+    index, nee, friction, tair, is_night = _night_record(9)
+    seasons = assign_seasons(index, 48.0)
+    first = bootstrap_threshold(nee, friction, tair, is_night, seasons, draws=20, seed=3)
+    again = bootstrap_threshold(nee, friction, tair, is_night, seasons, draws=20, seed=3)
+    other = bootstrap_threshold(nee, friction, tair, is_night, seasons, draws=20, seed=4)
+    pd.testing.assert_frame_equal(first, again)
+    assert not first["threshold"].equals(other["threshold"])
+    assert list(first.columns) == ["draw", "year", "period", "threshold"]
+    assert len(first) == 20 * 5
+    assert set(first["period"]) == {"year", "winter", "spring", "summer", "autumn"}
+
+
+def test_bootstrap_spread_narrows_with_more_data():
+    """The 5–95 % spread of the annual threshold is narrower with three times the data."""
+    # common practice: sampling spread shrinks roughly as 1/sqrt(n).
+    sparse = _run(_night_record(10, coverage=1 / 3), draws=30).annual.iloc[0]
+    dense = _run(_night_record(10, coverage=1.0), draws=30).annual.iloc[0]
+    spread_sparse = sparse["threshold_p95"] - sparse["threshold_p05"]
+    spread_dense = dense["threshold_p95"] - dense["threshold_p05"]
+    assert spread_dense < spread_sparse
+
+
+def test_inputs_not_modified_and_deterministic():
+    """The detectors do not change their inputs and give identical results twice."""
+    record = _night_record(11, coverage=0.7)
+    copies = [np.array(a, copy=True) for a in record[1:]]
+    first = _run(record, detector="change_point", draws=5)
+    second = _run(record, detector="change_point", draws=5)
+    for original, copy in zip(record[1:], copies, strict=True):
+        assert np.array_equal(original, copy, equal_nan=True)
+    pd.testing.assert_frame_equal(first.annual, second.annual)
+    pd.testing.assert_frame_equal(first.bootstrap, second.bootstrap)
+
+
+def test_detect_threshold_defaults_and_table():
+    """Default call: 100 draws, moving point; the long table has annual and seasonal rows."""
+    index, nee, friction, tair, is_night = _night_record(12)
+    result = detect_threshold(index, nee, friction, tair, is_night, 48.0)
+    assert result.settings["detector"] == "moving_point" and result.settings["draws"] == 100
+    assert result.annual["draws_valid"].iloc[0] == 100
+    table = result.table()
+    assert table["period"].tolist() == ["year", "winter", "spring", "summer", "autumn"]
+    assert {"threshold", "threshold_p05", "threshold_p95", "detector", "reason"} <= set(table)
+    assert result.strata["used"].dtype == bool
+
+
+def test_invalid_settings_and_inputs():
+    """Unknown detector, bad settings, lengths and index give clear errors."""
+    index, nee, friction, tair, is_night = _night_record(13, coverage=0.2)
+    seasons = assign_seasons(index, 48.0)
+    with pytest.raises(ConfigError, match="'moving_point', 'change_point'"):
+        detect_threshold(index, nee, friction, tair, is_night, 48.0, detector="fast")
+    with pytest.raises(ConfigError, match="plateau_share"):
+        moving_point_threshold(nee, friction, tair, is_night, seasons, plateau_share=1.5)
+    with pytest.raises(ConfigError, match="draws"):
+        bootstrap_threshold(nee, friction, tair, is_night, seasons, draws=-1)
+    with pytest.raises(ConfigError, match="unknown"):
+        bootstrap_threshold(nee, friction, tair, is_night, seasons, bins=10)
+    with pytest.raises(FluxpartError, match="ustar has"):
+        moving_point_threshold(nee, friction[:-1], tair, is_night, seasons)
+    with pytest.raises(TimestampError):
+        detect_threshold(np.arange(len(nee)), nee, friction, tair, is_night, 48.0)
+    with pytest.raises(FluxpartError, match="seasons"):
+        moving_point_threshold(nee, friction, tair, is_night, seasons["year"])
