@@ -1,4 +1,4 @@
-"""The ``fluxpart`` command line: demo, run, check.
+"""The ``fluxpart`` command line: demo, run, check, verify, report, batch.
 
 Every user error (bad config, bad input, too little data) is printed as one
 ``error: ...`` line naming the setting, column or row, with exit status 2; a
@@ -29,7 +29,7 @@ def _command_demo(args) -> int:
 
     frame, truth = demo.site_year(seed=args.seed)
     site = demo.site()
-    result = process(frame, site)
+    result = process(frame, site, provenance={"demo": {"seed": args.seed, "variant": "c3"}})
     out = Path(args.out)
     result.write(out)
     print(f"fluxpart demo: {site.name} (a fictional site), {frame.index[0]:%Y-%m-%d} to "
@@ -89,7 +89,37 @@ def _parser() -> argparse.ArgumentParser:
     check = commands.add_parser("check", help="validate the input only: coverage, gaps, problems")
     check.add_argument("config", help="site config (TOML)")
     check.set_defaults(handler=_command_check)
+
+    verify = commands.add_parser("verify", help="rerun from DIR/manifest.json and compare")
+    verify.add_argument("directory", help="result folder written by run or demo")
+    verify.add_argument("--input", help="the input file, if it has moved since the run")
+    verify.set_defaults(handler=_lazy("verify", "command_verify"))
+
+    report = commands.add_parser("report", help="figures and a self-contained HTML page")
+    report.add_argument("directory", help="result folder written by run or demo")
+    report.add_argument("--out", help="where to write the page (default: DIR/report/)")
+    report.add_argument("--quiet", action="store_true", help="no progress output")
+    report.set_defaults(handler=_lazy("report", "command_report"))
+
+    batch = commands.add_parser("batch", help="many sites on Dask")
+    batch.add_argument("sites", help="SITES.toml listing site configs (paths or globs)")
+    batch.add_argument("--scheduler", help="address of an existing Dask scheduler "
+                       "(default: a local cluster of processes)")
+    batch.add_argument("--workers", type=int, help="workers of the local cluster")
+    batch.add_argument("--out", help="output folder (default: from SITES.toml)")
+    batch.add_argument("--force", action="store_true", help="rerun sites already up to date")
+    batch.add_argument("--quiet", action="store_true", help="no progress output")
+    batch.set_defaults(handler=_lazy("batch", "command_batch"))
     return parser
+
+
+def _lazy(module: str, function: str):
+    """A handler that imports ``fluxpart.<module>.<function>`` only when its command runs."""
+    def handler(args) -> int:
+        from importlib import import_module
+
+        return getattr(import_module(f"fluxpart.{module}"), function)(args)
+    return handler
 
 
 def main(argv=None) -> int:
