@@ -50,6 +50,18 @@ class Config:
         the flagged fall-back for years where no threshold can be detected. 0.2 m s-1
         is our choice, a value typical of the thresholds reported for forests and
         grasslands (m).
+    ustar_temperature_classes : int
+        Moving point test: night data of a season split into this many temperature
+        classes of equal size; 6, Reichstein et al. (2005) (m).
+    ustar_classes : int
+        u* classes of equal size within each temperature class; 20, Reichstein et
+        al. (2005) (m).
+    ustar_plateau_share : float
+        The threshold is the first u* class whose mean night NEE reaches this share
+        of the mean of the classes above it; 0.99, Reichstein et al. (2005) (m).
+    ustar_correlation_limit : float
+        Temperature classes are used only where |r(u*, T)| is below this; 0.4,
+        Papale et al. (2006) (m).
     ustar_min_threshold : float
         Floor of a detected threshold [m s-1]; 0.1, our choice after the floors used
         with the moving point test (m).
@@ -123,6 +135,10 @@ class Config:
     rg_relative_margin: float = 0.2
     ustar_method: str = "moving_point"
     ustar_threshold: float = 0.2
+    ustar_temperature_classes: int = 6
+    ustar_classes: int = 20
+    ustar_plateau_share: float = 0.99
+    ustar_correlation_limit: float = 0.4
     ustar_min_threshold: float = 0.1
     ustar_bootstrap_draws: int = 100
     ustar_scenarios: tuple[int, ...] = (5, 50, 95)
@@ -216,10 +232,11 @@ _POSITIVE = ("night_rg_threshold", "rg_tolerance", "tair_tolerance", "vpd_tolera
              "e0_window_days", "e0_window_step_days", "e0_min_temperature_range",
              "e0_max_relative_error", "rref_window_days", "despike_z", "despike_block_days",
              "gapfill_max_window_days", "daytime_window_days", "daytime_window_step_days",
-             "agreement_margin", "daytime_beta0_max")
+             "agreement_margin", "daytime_beta0_max", "ustar_plateau_share",
+             "ustar_correlation_limit")
 _NON_NEGATIVE = ("ustar_threshold", "ustar_min_threshold", "rg_margin", "rg_relative_margin")
 _COUNTS = ("e0_min_points", "e0_best_windows", "rref_min_points", "daytime_min_points",
-           "daytime_k_min_points")
+           "daytime_k_min_points", "ustar_temperature_classes", "ustar_classes")
 _PERCENTILES = (5, 16, 50, 84, 95)
 
 

@@ -244,8 +244,13 @@ def pass_sequence(*, all_drivers=True, radiation=True, max_window_days=_MAX_WIND
     if radiation:
         passes.append((METHOD_RADIATION, 7))
     passes += [(METHOD_DIURNAL_COURSE, k) for k in (0, 1, 2)]
-    rounds = int(min(limit // _WIDENING_STEP_DAYS,
-                     np.ceil(max(record_days, 1.0) / _WIDENING_STEP_DAYS)))
+    if np.isinf(limit) and np.isinf(record_days):
+        raise ConfigError("max_window_days = inf: give record_days, the record length [days], "
+                          "so that widening can stop at the whole record")
+    rounds = np.ceil(max(record_days, 1.0) / _WIDENING_STEP_DAYS)
+    if np.isfinite(limit):
+        rounds = min(rounds, limit // _WIDENING_STEP_DAYS)
+    rounds = int(rounds)
     for r in range(1, rounds + 1):
         step = _WIDENING_STEP_DAYS * r
         if all_drivers:

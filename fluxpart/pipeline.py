@@ -137,7 +137,7 @@ def _temperature(config: Config, frame: pd.DataFrame) -> str:
     return driver
 
 
-def _ustar_thresholds(frame, screened_nee, is_night, site, config):
+def _ustar_thresholds(frame, screened, is_night, site, config):
     """Return (u* table, bootstrap draws, central threshold per year, scenario thresholds).
 
     The central threshold of a year is the detector's value on the data; years
@@ -151,10 +151,13 @@ def _ustar_thresholds(frame, screened_nee, is_night, site, config):
         central = pd.Series(config.ustar_threshold, index=years, name="threshold")
         return table, pd.DataFrame(), central, {}
     found = ustar.detect_threshold(
-        frame.index, screened_nee, frame["ustar"].to_numpy(), frame["tair"].to_numpy(),
-        is_night, site.latitude, detector=config.ustar_method,
+        frame.index, screened["nee"].to_numpy(), screened["ustar"].to_numpy(),
+        screened["tair"].to_numpy(), is_night, site.latitude, detector=config.ustar_method,
         draws=config.ustar_bootstrap_draws, seed=config.seed,
-        min_threshold=config.ustar_min_threshold)
+        min_threshold=config.ustar_min_threshold,
+        temperature_classes=config.ustar_temperature_classes,
+        ustar_classes=config.ustar_classes, plateau_share=config.ustar_plateau_share,
+        correlation_limit=config.ustar_correlation_limit)
     annual = found.annual.set_index("year").reindex(years)
     detected = annual["threshold"].astype(float)
     central = detected.fillna(config.ustar_threshold).rename("threshold")
@@ -252,7 +255,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     screened = screens.screened
 
     ustar_table, ustar_draws, central, scenario_thresholds = _ustar_thresholds(
-        frame, screens.nee_screened.to_numpy(), is_night, site, config)
+        frame, screened, is_night, site, config)
     if (ustar_table["source"] == "fallback").any():
         years = sorted(set(ustar_table.loc[ustar_table["source"] == "fallback", "year"]))
         warnings.append(f"u* threshold not detectable in {', '.join(map(str, years))}: the fixed "

@@ -13,6 +13,7 @@ import inspect
 import numpy as np
 import pandas as pd
 import pytest
+from conftest import load_reference
 from gapfill_oracle import oracle_fill_drivers, oracle_fill_marginal
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
@@ -35,8 +36,6 @@ from fluxpart.gapfill import (
     pass_sequence,
     quality_class,
 )
-
-from .conftest import load_reference
 
 REFERENCE = load_reference("gapfill")
 COLUMNS = ["value", "method", "window_days", "count", "std", "quality"]
@@ -254,10 +253,13 @@ def test_missing_drivers_route_to_later_steps():
     tair, vpd = np.full(n, 10.0), np.full(n, 4.0)
     tair[10] = np.nan
     out = fill_marginal(values, _drivers(n, rg, tair, vpd), _index(n))
+    # record 10: every other record has Rg = 0 W m-2, so all measured ones average:
+    # 23 records of 1 and 23 of 3
     assert out["method"].iloc[10] == 2
-    assert out["value"].iloc[10] == pytest.approx(np.nanmean(values[np.arange(n) != 11]))
-    assert out["method"].iloc[11] == 3
-    assert out["value"].iloc[11] == pytest.approx(np.mean([1.0, 1.0, 3.0]))  # records 8, 9?
+    assert out["value"].iloc[10] == pytest.approx(2.0)
+    # record 11: records 9, 12, 13 within ±2 (record 10 is a gap): (3 + 1 + 3) / 3
+    assert (out["method"].iloc[11], out["count"].iloc[11]) == (3, 3)
+    assert out["value"].iloc[11] == pytest.approx(7.0 / 3.0)
 
 
 def test_window_crosses_the_year_boundary():
@@ -360,7 +362,7 @@ def test_fill_drivers_columns_and_methods():
                                  "tsoil_filled", "tsoil_fill_quality"]
     assert out["rg_filled"].iloc[60] == pytest.approx(np.mean(rg[[58, 59, 61, 62]]))
     similar = np.abs(rg - rg[70]) <= 50
-    similar[70] = False
+    similar[[60, 70]] = False  # record 60 has no Rg, record 70 no Tair
     assert out["tair_filled"].iloc[70] == pytest.approx(np.mean(tair[similar]))
     assert out["tsoil_filled"].iloc[80] == 8.0
     assert out.notna().all().all()
@@ -369,10 +371,10 @@ def test_fill_drivers_columns_and_methods():
 
 def test_driver_conditions_drop_poor_fills():
     """Drivers filled with quality B or C are not used as conditions (our choice)."""
-    n = 48 * 40
+    n = 48 * 60
     index = _index(n)
     tair = np.full(n, 5.0)
-    tair[48 * 10: 48 * 20] = np.nan  # a 10-day Tair gap: the middle is filled with B/C
+    tair[48 * 10: 48 * 40] = np.nan  # a 30-day Tair gap: its middle gets B or C
     rg = np.zeros(n)
     frame = pd.DataFrame({"rg": rg, "tair": tair, "vpd": np.ones(n)}, index=index)
     filled = fill_drivers(frame)
@@ -419,7 +421,9 @@ def test_artificial_gaps_recover_the_flux():
     error = out["value"].to_numpy()[hidden] - noisy[hidden]
     rmse, bias = np.sqrt(np.mean(error**2)), np.mean(error)
     print(f"artificial gaps: n={hidden.sum()}, RMSE={rmse:.2f}, bias={bias:+.3f} µmol m-2 s-1")
-    assert 1.2 <= rmse < REFERENCE["artificial_gaps"]["rmse_high"]
+    # lower bound: the random error itself, less 3 sampling standard errors of an RMSE
+    # over ~800 records (1.2 * (1 - 3 / sqrt(1600)) = 1.11)
+    assert 1.1 < rmse < REFERENCE["artificial_gaps"]["rmse_high"]
     assert abs(bias) < 0.3
     # against the noise-free truth the error is only the MDS averaging error
     truth_error = out["value"].to_numpy()[hidden] - truth[hidden]
