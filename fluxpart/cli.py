@@ -63,10 +63,22 @@ def _command_check(args) -> int:
     from .coverage import coverage_table, format_check
     from .io import read_site_config
 
+    from .config import Config
+    from .pipeline import screening_summary
+
     site_config = read_site_config(args.config)
     frame, report = site_config.read()
     table = coverage_table(frame, report.interval_minutes)
     print(format_check(site_config.site, report, table))
+    counts, thresholds = screening_summary(frame, site_config.site,
+                                           Config.from_toml(args.config))
+    print("\nscreening of NEE (records per first reason, before the u* filter)")
+    print(counts.to_string())
+    print("\nu* threshold [m s-1] (bootstrap percentiles where drawn)")
+    columns = [c for c in ("year", "period", "threshold", "threshold_p05", "threshold_p50",
+                           "threshold_p95", "night_records", "source", "reason")
+               if c in thresholds.columns]
+    print(thresholds[columns].to_string(index=False, float_format=lambda v: f"{v:.3f}"))
     return 0
 
 

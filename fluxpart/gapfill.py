@@ -39,13 +39,21 @@ and K days on either side). Quality class (Reichstein et al. 2005, appendix (m))
 A for steps 1–2 with a full window <= 14 days or step 3 with <= 1 day; B for
 steps 1–2 with <= 28 days or step 3 with <= 5 days; C otherwise.
 
-The passes loop over steps, window sizes and blocks of neighbouring gaps that share
-one window slice, never over single gaps. In a block, a (gaps × window records)
-boolean similarity matrix is built by broadcasting and reduced by a matrix product
-(sum) and a masked two-pass sum of squares (standard deviation). The diurnal course
-gathers, for every gap, the few records at the fixed offsets d·(records per day) + o.
-Block sizes keep every temporary below a fixed number of elements, so memory grows
-linearly with the record length.
+"Within ±tolerance" is inclusive and evaluated as ``x(t) - tol <= x <= x(t) + tol``
+with the bounds in float64. The fill is the mean of the records found; ``std`` is
+their population standard deviation (ddof = 0, so 0 for a single record).
+
+Implementation: the passes loop over steps, window sizes and blocks of neighbouring
+gaps that share one window slice, never over single gaps. In a block, a (gaps ×
+window records) boolean similarity matrix is built by broadcasting. The driver
+comparisons use integer ranks of the driver values, which give the same decisions
+as the float comparisons and are several times faster. The similar pairs of each
+gap form one run of the flattened matrix, and the runs are reduced to mean and
+two-pass standard deviation with ``numpy.add.reduceat`` (a fixed summation order,
+so results are reproducible bit for bit). The diurnal course gathers, for every gap,
+the few records at the fixed offsets d·(records per day) + o. Block sizes keep every
+temporary below a fixed number of elements, so memory grows linearly with the record
+length.
 
 References
 ----------
@@ -107,6 +115,11 @@ QUALITY_MEASURED = 0
 QUALITY_A = 1
 QUALITY_B = 2
 QUALITY_C = 3
+
+#: Largest full window [days] of quality A and B, for steps 1–2 (similar drivers)
+#: and step 3 (diurnal course); Reichstein et al. (2005), appendix (m).
+_A_SIMILAR_DAYS, _A_DIURNAL_DAYS = 14.0, 1.0
+_B_SIMILAR_DAYS, _B_DIURNAL_DAYS = 28.0, 5.0
 
 #: Defaults: Reichstein et al. (2005), appendix.
 _RG_TOLERANCE = 50.0  # [W m-2]
@@ -288,8 +301,10 @@ def quality_class(method, window_days) -> np.ndarray:
     similar = (method == METHOD_ALL_DRIVERS) | (method == METHOD_RADIATION)
     diurnal = method == METHOD_DIURNAL_COURSE
     quality = np.full(method.shape, QUALITY_C, dtype=np.int8)
-    quality[(similar & (window <= 28)) | (diurnal & (window <= 5))] = QUALITY_B
-    quality[(similar & (window <= 14)) | (diurnal & (window <= 1))] = QUALITY_A
+    quality[(similar & (window <= _B_SIMILAR_DAYS))
+            | (diurnal & (window <= _B_DIURNAL_DAYS))] = QUALITY_B
+    quality[(similar & (window <= _A_SIMILAR_DAYS))
+            | (diurnal & (window <= _A_DIURNAL_DAYS))] = QUALITY_A
     quality[method == METHOD_MEASURED] = QUALITY_MEASURED
     quality[method == METHOD_UNFILLED] = QUALITY_UNFILLED
     return quality

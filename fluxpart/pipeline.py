@@ -30,7 +30,7 @@ from .partition import daytime, nighttime
 from .site import Site
 from .variables import REQUIRED, VARIABLES
 
-__all__ = ["Result", "process", "process_site_config"]
+__all__ = ["Result", "process", "process_site_config", "screening_summary"]
 
 _BUDGET_FLUXES = {"nee_filled": "nee", "gpp_nighttime": "gpp_nighttime",
                   "reco_nighttime": "reco_nighttime", "gpp_daytime": "gpp_daytime",
@@ -175,6 +175,47 @@ def _ustar_thresholds(frame, screened, is_night, site, config):
     return table, found.bootstrap, central, scenarios
 
 
+def _geometry_and_screening(frame, site, config, interval):
+    geometry = solar.solar_geometry(frame.index, site, interval_minutes=interval)
+    potential = geometry["potential_radiation"].to_numpy()
+    is_night = solar.night_mask(frame["rg"].to_numpy(), potential, config.night_rg_threshold)
+    screens = screening.screen(
+        frame, potential, is_night, despike_z=config.despike_z,
+        despike_block_days=config.despike_block_days, rg_margin=config.rg_margin,
+        rg_relative_margin=config.rg_relative_margin)
+    return geometry, is_night, screens
+
+
+def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = None):
+    """Screen a record and estimate its u* threshold, without filling or partitioning.
+
+    What ``fluxpart check`` reports beyond the reader: records per screening reason
+    (before the u* filter) and the u* threshold per year and season with its
+    bootstrap percentiles.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Canonical record, as for :func:`process`.
+    site : Site
+        The tower's location.
+    config : Config, optional
+        Settings; defaults when omitted.
+
+    Returns
+    -------
+    counts : pandas.Series
+        Records per screening reason (``kept``, ``missing``, ``out_of_range``, ...).
+    thresholds : pandas.DataFrame
+        The u* table of :attr:`Result.ustar`.
+    """
+    config = Config() if config is None else config
+    interval = _validate(frame)
+    _, is_night, screens = _geometry_and_screening(frame, site, config, interval)
+    table, _, _, _ = _ustar_thresholds(frame, screens.screened, is_night, site, config)
+    return screens.counts.drop(labels=["low_ustar"], errors="ignore"), table
+
+
 def _per_record(index, per_year: pd.Series) -> np.ndarray:
     return per_year.reindex(index.year).to_numpy(dtype=float)
 
@@ -244,14 +285,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     temperature = _temperature(config, frame)
     warnings = []
 
-    geometry = solar.solar_geometry(frame.index, site, interval_minutes=interval)
-    potential = geometry["potential_radiation"].to_numpy()
-    is_night = solar.night_mask(frame["rg"].to_numpy(), potential, config.night_rg_threshold)
-
-    screens = screening.screen(
-        frame, potential, is_night, despike_z=config.despike_z,
-        despike_block_days=config.despike_block_days, rg_margin=config.rg_margin,
-        rg_relative_margin=config.rg_relative_margin)
+    geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     screened = screens.screened
 
     ustar_table, ustar_draws, central, scenario_thresholds = _ustar_thresholds(

@@ -30,6 +30,8 @@ def test_check_prints_the_coverage_table(example, capsys):
     assert "coverage" in out and "longest gap" in out
     for name in ("nee", "rg", "tair", "vpd", "ustar"):
         assert f"\n{name} " in out
+    # issue 5: the screening counts and the u* threshold estimate
+    assert "spike" in out and "u* threshold" in out and "detected" in out
 
 
 def test_run_writes_the_result_folder(example, tmp_path, capsys):

@@ -91,7 +91,7 @@ def _assert_same_fill(got, expected):
 
 # --------------------------------------------------------------------------- oracle
 
-@settings(max_examples=30, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(seed=st.integers(0, 2**32 - 1), minutes=st.sampled_from([30, 60]),
        n=st.integers(300, 3000), gap_fraction=st.floats(0.05, 0.9),
        driver_gap_fraction=st.floats(0.0, 0.5), long_gap_days=st.sampled_from([0.0, 5.0, 30.0]),
@@ -110,7 +110,7 @@ def test_vectorised_equals_oracle(seed, minutes, n, gap_fraction, driver_gap_fra
     _assert_same_fill(got, expected)
 
 
-@settings(max_examples=15, deadline=None)
+@settings(max_examples=25, deadline=None)
 @given(seed=st.integers(0, 2**32 - 1), minutes=st.sampled_from([30, 60]),
        n=st.integers(300, 2000), driver_gap_fraction=st.floats(0.0, 0.6),
        with_tsoil=st.booleans())
@@ -260,6 +260,25 @@ def test_missing_drivers_route_to_later_steps():
     # record 11: records 9, 12, 13 within ±2 (record 10 is a gap): (3 + 1 + 3) / 3
     assert (out["method"].iloc[11], out["count"].iloc[11]) == (3, 3)
     assert out["value"].iloc[11] == pytest.approx(7.0 / 3.0)
+
+
+@pytest.mark.parametrize("minutes", [30, 60])
+@pytest.mark.parametrize(("days_away", "window"), [(6.5, 14.0), (8.0, 28.0)])
+def test_windows_are_in_days_not_records(minutes, days_away, window):
+    """A similar record 6.5 days away is within ±7 days, 8 days away only ±14, at any spacing."""
+    per_day = 1440 // minutes
+    n = per_day * 10
+    values = np.full(n, np.nan)
+    values[int(days_away * per_day)] = 4.0
+    out = fill_marginal(values, _drivers(n, 0.0, 5.0, 1.0), _index(n, minutes))
+    assert (out["method"].iloc[0], out["window_days"].iloc[0]) == (1, window)
+
+
+def test_nullable_series_input():
+    """A nullable Float64 Series with pd.NA is read as NaN where missing."""
+    target = pd.Series([1.0, pd.NA, 3.0, 5.0], dtype="Float64")
+    out = fill_marginal(target, _drivers(4), _index(4))
+    assert out["value"].iloc[1] == pytest.approx(3.0)  # (1 + 3 + 5) / 3 within ±2 records
 
 
 def test_window_crosses_the_year_boundary():
