@@ -186,3 +186,23 @@ def test_too_little_night_data_fails_clearly_unless_a_fallback_is_chosen():
         process(blind, demo.site(), config)
     result = process(blind, demo.site(), Config(ustar_method="fixed", e0_fallback=308.56))
     assert (result.parameters["nighttime_e0_annual"]["source"] == "fallback").all()
+
+
+@pytest.mark.parametrize("planted", [0.18, 0.3])
+def test_demo_ustar_threshold_recovered(planted):
+    """Known truth: the demo's planted low-u* loss is found within ±0.05 m s-1 (issue 5)."""
+    frame, _ = demo.site_year(seed=5, ustar_threshold=planted)
+    _, table = fluxpart.pipeline.screening_summary(frame, demo.site(),
+                                                   Config(ustar_bootstrap_draws=0))
+    annual = table[table["period"] == "year"].iloc[0]
+    assert annual["source"] == "detected"
+    assert abs(annual["threshold"] - planted) <= 0.05
+
+
+def test_demo_without_ustar_loss_gives_no_artefact():
+    """With no low-u* loss planted, the detector reports a low threshold, not an artefact."""
+    frame, _ = demo.site_year(seed=5, ustar_threshold=None)
+    _, table = fluxpart.pipeline.screening_summary(frame, demo.site(),
+                                                   Config(ustar_bootstrap_draws=0))
+    annual = table[table["period"] == "year"].iloc[0]
+    assert np.isnan(annual["threshold"]) or annual["threshold"] <= 0.15

@@ -1,0 +1,731 @@
+"""Many sites on Dask: ``fluxpart batch SITES.toml``.
+
+A network file (``SITES.toml``, a format of fluxpart's own) lists site configs;
+each site becomes one Dask task that runs
+:func:`fluxpart.pipeline.process_site_config` and writes its result folder
+exactly as ``fluxpart run`` does (:meth:`fluxpart.pipeline.Result.write`).
+The client then writes two network tables:
+
+- ``<out>/network_annual/`` — every site's annual budget as one Parquet dataset
+  partitioned by site (``site=<key>/part-0.parquet``), readable with
+  ``pyarrow.dataset.dataset(path, partitioning="hive")`` or
+  ``pandas.read_parquet(path)``, which restore the ``site`` column;
+- ``<out>/failures.parquet`` — one row per site that failed: its key, config
+  path, error class and message.
+
+Network file::
+
+    # SITES.toml: paths and globs relative to this file
+    [batch]
+    sites = ["towers/*.toml", "other/fen.toml"]
+    out = "network-output"       # optional; default: <SITES stem>-output beside it
+
+Inputs travel as paths, not data: the workers open the site configs and tower
+files and write the result folders themselves, so every worker must see the
+same file system as the client (one machine, or a shared file system on a
+cluster). Paths are resolved to absolute ones before they are sent.
+
+A site whose input is bad does not stop the others: its error is recorded in the
+failures table and the exit status is 1. A rerun skips each site whose result
+folder is up to date (see :func:`is_up_to_date`) unless ``force`` is given.
+"""
+
+from __future__ import annotations
+
+import glob
+import json
+import logging
+import re
+import shutil
+import sys
+import tempfile
+import tomllib
+import traceback
+import uuid
+from collections import Counter
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import pandas as pd
+import pyarrow as pa
+import pyarrow.parquet as pq
+
+from .config import Config, suggest_key
+from .errors import ConfigError, FluxpartError, InputFileError
+from .manifest import CAUTION, MANIFEST_FORMAT, library_versions, read_manifest
+from .schema import units_for_table
+from .store import atomic_write_bytes, file_sha256, read_table, write_table
+
+__all__ = [
+    "BatchReport",
+    "NetworkFile",
+    "SiteOutcome",
+    "command_batch",
+    "is_up_to_date",
+    "read_network_annual",
+    "read_sites_file",
+    "run_batch",
+    "run_site",
+]
+
+#: Folder of the network's annual dataset inside the batch output folder.
+NETWORK_DATASET = "network_annual"
+#: File of the failures table inside the batch output folder.
+FAILURES_FILE = "failures.parquet"
+
+_BATCH_KEYS = ("out", "sites")
+_DEFAULT_WORKERS = 2
+_CONNECT_TIMEOUT_SECONDS = 10
+_RESERVED_KEYS = {NETWORK_DATASET, FAILURES_FILE}
+_SITE_COLUMNS = {
+    "site_name": ("", "the site's [site] name"),
+    "latitude": ("degrees", "latitude of the tower, north positive"),
+    "longitude": ("degrees", "longitude of the tower, east positive"),
+}
+_FAILURE_COLUMNS = {
+    "site": ("", "site key (the result folder's name)"),
+    "config": ("", "absolute path of the site config"),
+    "error": ("", "error class"),
+    "message": ("", "error message"),
+    "kind": ("", "'input': bad input or settings; 'internal': a fault of fluxpart or of the "
+             "cluster"),
+}
+_SUMMARY_COLUMNS = ("site", "year", "nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime",
+                    "reco_daytime", "ustar_threshold", "complete")
+
+
+@dataclass(frozen=True)
+class NetworkFile:
+    """A parsed network file (``SITES.toml``).
+
+    Attributes
+    ----------
+    path : pathlib.Path
+        The network file, absolute.
+    out : pathlib.Path
+        Batch output folder, absolute: ``[batch] out`` relative to the file, or
+        ``<stem>-output`` beside it.
+    sites : tuple of (str, pathlib.Path)
+        ``(key, config)`` per site in listing order: each pattern's matches sorted,
+        duplicates dropped. The key names the site's result folder and its
+        partition of the network dataset.
+    """
+
+    path: Path
+    out: Path
+    sites: tuple
+
+
+@dataclass(frozen=True)
+class SiteOutcome:
+    """What one site's task did.
+
+    Attributes
+    ----------
+    key : str
+        Site key.
+    config : str
+        Absolute path of the site config.
+    directory : str
+        Absolute path of the site's result folder.
+    status : {"written", "skipped", "failed"}
+        ``"skipped"``: the folder was already up to date.
+    note : str
+        Why the site was (re)processed or skipped, or the failure in one line.
+    site : dict or None
+        The site's ``name``, ``latitude``, ``longitude`` and ``utc_offset``.
+    annual : pandas.DataFrame or None
+        The annual budget as stored in the folder's ``annual.parquet``
+        [g C m-2 per year], indexed by year.
+    error, message, kind : str
+        Error class, message and ``"input"`` or ``"internal"`` of a failure.
+    traceback : str
+        Traceback of an internal failure (a fault of fluxpart or of the cluster).
+    """
+
+    key: str
+    config: str
+    directory: str
+    status: str
+    note: str = ""
+    site: dict | None = None
+    annual: pd.DataFrame | None = field(default=None, repr=False)
+    error: str = ""
+    message: str = ""
+    kind: str = ""
+    traceback: str = field(default="", repr=False)
+
+
+@dataclass(frozen=True)
+class BatchReport:
+    """Outcome of :func:`run_batch`.
+
+    Attributes
+    ----------
+    out : pathlib.Path
+        Batch output folder.
+    outcomes : tuple of SiteOutcome
+        One per site, in the network file's order.
+    network : pandas.DataFrame
+        The network's annual budgets as written to ``out/network_annual``: a
+        ``site`` column, ``year``, the site's name and location and every column of
+        the sites' ``annual`` tables [g C m-2 per year].
+    failures : pandas.DataFrame
+        As written to ``out/failures.parquet``: ``site``, ``config``, ``error``,
+        ``message``, ``kind``.
+    """
+
+    out: Path
+    outcomes: tuple
+    network: pd.DataFrame = field(repr=False)
+    failures: pd.DataFrame = field(repr=False)
+
+    def _count(self, status: str) -> int:
+        return sum(outcome.status == status for outcome in self.outcomes)
+
+    @property
+    def written(self) -> int:
+        """Sites processed and written in this run."""
+        return self._count("written")
+
+    @property
+    def skipped(self) -> int:
+        """Sites whose result folder was already up to date."""
+        return self._count("skipped")
+
+    @property
+    def failed(self) -> int:
+        """Sites that failed."""
+        return self._count("failed")
+
+    @property
+    def exit_code(self) -> int:
+        """``1`` when any site failed, else ``0``."""
+        return 1 if self.failed else 0
+
+
+# --------------------------------------------------------------------------- network file
+
+def read_sites_file(path) -> NetworkFile:
+    """Parse and validate a network file (``SITES.toml``).
+
+    Parameters
+    ----------
+    path : str or path-like
+        The network file. Its ``[batch]`` table has ``sites``, a list of site
+        config paths or glob patterns (``*``, ``?``, ``[...]``, ``**`` for any depth),
+        relative to the file; and optionally ``out``, the output folder.
+
+    Returns
+    -------
+    NetworkFile
+
+    Raises
+    ------
+    InputFileError
+        If the file does not exist or cannot be read.
+    ConfigError
+        If the TOML is invalid, a table or key is unknown (the nearest valid one is
+        suggested), ``sites`` is missing or empty, a path does not exist or a
+        pattern matches no ``.toml`` file.
+
+    Notes
+    -----
+    A pattern keeps only files ending in ``.toml``; a plain path is taken as
+    written. Matches of each pattern are sorted; a config listed twice is kept
+    once. A site's key is its config's file stem (characters other than letters,
+    digits, ``.``, ``_`` and ``-`` become ``_``); stems that occur more than once
+    are prefixed with their folder's name (``north/tower.toml`` ->
+    ``north-tower``), and a key still taken gets ``-2``, ``-3``, ...
+    """
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise InputFileError(f"network file {str(path)!r} does not exist") from None
+    except (OSError, UnicodeDecodeError) as error:
+        raise InputFileError(f"network file {str(path)!r} cannot be read: {error}") from None
+    try:
+        document = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as error:
+        raise ConfigError(f"network file {str(path)!r} is not valid TOML: {error}") from None
+    for key in document:
+        if key != "batch":
+            raise ConfigError(f"network file {str(path)!r}: unknown table [{key}]"
+                              f"{suggest_key(key, ('batch',))}")
+    table = document.get("batch")
+    if not isinstance(table, dict):
+        raise ConfigError(f"network file {str(path)!r} has no [batch] table; write [batch] "
+                          'with sites = ["sites/*.toml"]')
+    for key in table:
+        if key not in _BATCH_KEYS:
+            raise ConfigError(f"[batch] {key}: unknown setting{suggest_key(key, _BATCH_KEYS)}")
+    base = path.resolve().parent
+    out = table.get("out", f"{path.stem}-output")
+    if not isinstance(out, str) or not out.strip():
+        raise ConfigError(f"[batch] out = {out!r}: expected a folder path (a string, relative "
+                          "to the network file)")
+    configs = _expand_sites(table.get("sites"), base)
+    keys = _site_keys(configs)
+    return NetworkFile(path=path.resolve(), out=base / out, sites=tuple(zip(keys, configs, strict=True)))
+
+
+def _expand_sites(patterns, base: Path) -> list[Path]:
+    if patterns is None:
+        raise ConfigError('[batch] sites is missing; list the site configs, e.g. sites = '
+                          '["sites/*.toml"] (paths and globs relative to the network file)')
+    if not isinstance(patterns, list) or not patterns:
+        raise ConfigError(f"[batch] sites = {patterns!r}: expected a non-empty list of site "
+                          "config paths or glob patterns")
+    configs, seen = [], set()
+    for position, pattern in enumerate(patterns):
+        where = f"[batch] sites[{position}] = {pattern!r}"
+        if not isinstance(pattern, str) or not pattern.strip():
+            raise ConfigError(f"{where}: expected a path or glob pattern (a non-empty string)")
+        full = base / pattern
+        if glob.has_magic(pattern):
+            matches = sorted(Path(p) for p in glob.glob(str(full), recursive=True)
+                             if p.endswith(".toml") and Path(p).is_file())
+            if not matches:
+                raise ConfigError(f"{where} matches no .toml file (looked for {str(full)!r})")
+        elif full.is_file():
+            matches = [full]
+        else:
+            raise ConfigError(f"{where}: no such file {str(full)!r}")
+        for match in matches:
+            resolved = match.resolve()
+            if resolved not in seen:
+                seen.add(resolved)
+                configs.append(resolved)
+    return configs
+
+
+def _clean_key(text: str) -> str:
+    return re.sub(r"[^A-Za-z0-9._-]+", "_", text).strip("._") or "site"
+
+
+def _site_keys(configs: list[Path]) -> list[str]:
+    stems = [_clean_key(config.stem) for config in configs]
+    counts = Counter(stems)
+    keys, used = [], set()
+    for config, stem in zip(configs, stems, strict=True):
+        base = stem if counts[stem] == 1 else _clean_key(f"{config.parent.name}-{config.stem}")
+        key, number = base, 2
+        while key in used or key in _RESERVED_KEYS:
+            key, number = f"{base}-{number}", number + 1
+        used.add(key)
+        keys.append(key)
+    return keys
+
+
+# --------------------------------------------------------------------------- one site
+
+def _stale_reason(config, directory) -> str | None:
+    """Return why `directory` does not hold the current result of `config`, or None."""
+    from .io import read_site_config
+
+    directory = Path(directory)
+    if not (directory / "manifest.json").exists():
+        return "new"
+    try:
+        manifest = read_manifest(directory)
+    except InputFileError:
+        return "manifest unreadable"
+    provenance = manifest.get("provenance") or {}
+    if manifest.get("format") != MANIFEST_FORMAT:
+        return "manifest format changed"
+    try:
+        config_sha = file_sha256(config)
+        input_sha = file_sha256(read_site_config(config).input_path)
+        settings = Config.from_toml(config).to_dict()
+    except (FluxpartError, OSError):
+        return "site config or input unreadable"
+    if (provenance.get("site_config") or {}).get("sha256") != config_sha:
+        return "site config changed"
+    if (provenance.get("input") or {}).get("sha256") != input_sha:
+        return "input changed"
+    if manifest.get("config") != settings:
+        return "settings changed"
+    if manifest.get("versions") != library_versions():
+        return "library versions changed"
+    tables = manifest.get("tables")
+    if not isinstance(tables, dict) or "annual" not in tables:
+        return "manifest lists no tables"
+    for entry in tables.values():
+        table_path = directory / str(entry.get("file", ""))
+        if not table_path.is_file():
+            return f"table {entry.get('file')!r} missing"
+        if file_sha256(table_path) != entry.get("sha256"):
+            return f"table {entry.get('file')!r} changed"
+    return None
+
+
+def is_up_to_date(config, directory) -> bool:
+    """Tell whether `directory` already holds the current result of a site config.
+
+    Parameters
+    ----------
+    config : str or path-like
+        The site config (TOML).
+    directory : str or path-like
+        Its result folder (``manifest.json`` and the tables).
+
+    Returns
+    -------
+    bool
+        True when the manifest records the same site config SHA-256, the same
+        input file SHA-256, the same resolved settings (:class:`fluxpart.Config`)
+        and the same library versions as now, and every table file it lists is
+        present with its recorded SHA-256. Rerunning such a site would give the
+        same bytes.
+    """
+    return _stale_reason(config, directory) is None
+
+
+def _annual_from(directory: Path) -> tuple[pd.DataFrame, dict]:
+    manifest = read_manifest(directory)
+    annual = read_table(directory / manifest["tables"]["annual"]["file"])
+    return annual, manifest["site"]
+
+
+def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome:
+    """Process one site config into its result folder: the work of one batch task.
+
+    Parameters
+    ----------
+    key : str
+        Site key, carried into the outcome.
+    config : str or path-like
+        The site config (TOML); give an absolute path when this runs on another
+        process or machine (inputs travel as paths on a shared file system).
+    directory : str or path-like
+        The site's result folder, written as ``fluxpart run --out directory`` does.
+    force : bool, optional
+        Process even if the folder is up to date (:func:`is_up_to_date`).
+
+    Returns
+    -------
+    SiteOutcome
+        ``"written"`` or ``"skipped"`` with the annual budget read back from the
+        folder, or ``"failed"`` with the error. Never raises: a failing site must
+        not stop the others.
+    """
+    from .pipeline import process_site_config
+
+    config, directory = Path(config), Path(directory)
+    common = {"key": key, "config": str(config), "directory": str(directory)}
+    try:
+        reason = "forced" if force else _stale_reason(config, directory)
+        if reason is None:
+            annual, site = _annual_from(directory)
+            return SiteOutcome(status="skipped", note="up to date", site=site, annual=annual,
+                               **common)
+        result = process_site_config(config)
+        result.write(directory)
+        annual, site = _annual_from(directory)
+        return SiteOutcome(status="written", note=reason, site=site, annual=annual, **common)
+    except Exception as error:  # isolate every site's failure
+        return _failure(common, error)
+
+
+def _failure(common: dict, error: BaseException) -> SiteOutcome:
+    kind = "input" if isinstance(error, FluxpartError) else "internal"
+    text = str(error) or repr(error)
+    trace = "" if kind == "input" else "".join(traceback.format_exception(error))
+    return SiteOutcome(status="failed", note=f"{type(error).__name__}: {text}",
+                       error=type(error).__name__, message=text, kind=kind, traceback=trace,
+                       **common)
+
+
+# --------------------------------------------------------------------------- network tables
+
+def _arrow_annual(outcome: SiteOutcome) -> pa.Table:
+    flat = outcome.annual.reset_index()
+    site = outcome.site or {}
+    for position, name in enumerate(_SITE_COLUMNS, start=1):
+        flat.insert(position, name, site.get(name))
+    return pa.Table.from_pandas(flat, preserve_index=False).replace_schema_metadata(None)
+
+
+def _unify(tables: list[pa.Table]) -> list[pa.Table]:
+    """Give every site's table the union of columns (nulls where a site lacks one)."""
+    schema = pa.unify_schemas([table.schema for table in tables], promote_options="permissive")
+    units = units_for_table("annual", schema.names)
+    units.update(_SITE_COLUMNS)
+    fields = [pa.field(f.name, f.type, metadata={b"unit": units[f.name][0].encode(),
+                                                 b"description": units[f.name][1].encode()})
+              for f in schema]
+    meta = {b"fluxpart": json.dumps({"table": NETWORK_DATASET, "partitioning": "site"},
+                                    sort_keys=True).encode()}
+    schema = pa.schema(fields, metadata=meta)
+    out = []
+    for table in tables:
+        arrays = [table[f.name].cast(f.type) if f.name in table.column_names
+                  else pa.nulls(len(table), f.type) for f in schema]
+        out.append(pa.Table.from_arrays(arrays, schema=schema))
+    return out
+
+
+def _parquet_bytes(table: pa.Table) -> bytes:
+    sink = pa.BufferOutputStream()
+    pq.write_table(table, sink, compression="zstd", use_dictionary=False,
+                   write_statistics=True, store_schema=True)
+    return sink.getvalue().to_pybytes()
+
+
+def _replace_folder(staging: Path, target: Path) -> None:
+    old = None
+    if target.exists():
+        old = Path(tempfile.mkdtemp(prefix=f".{target.name}.old.", dir=target.parent))
+        target.replace(old / target.name)
+    staging.replace(target)
+    if old is not None:
+        shutil.rmtree(old, ignore_errors=True)
+
+
+def _write_network(outcomes, out: Path) -> pd.DataFrame:
+    """Write the network dataset of the sites that succeeded; return it as one frame."""
+    done = [o for o in outcomes if o.status != "failed"]
+    staging = Path(tempfile.mkdtemp(prefix=f".{NETWORK_DATASET}.", dir=out))
+    try:
+        tables = _unify([_arrow_annual(o) for o in done]) if done else []
+        for outcome, table in zip(done, tables, strict=True):
+            atomic_write_bytes(staging / f"site={outcome.key}" / "part-0.parquet",
+                               _parquet_bytes(table))
+        _replace_folder(staging, out / NETWORK_DATASET)
+    except BaseException:
+        shutil.rmtree(staging, ignore_errors=True)
+        raise
+    return read_network_annual(out)
+
+
+def read_network_annual(out) -> pd.DataFrame:
+    """Read a batch's network dataset back as one DataFrame.
+
+    Parameters
+    ----------
+    out : str or path-like
+        The batch output folder (the one holding ``network_annual/``).
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per site and year: ``site`` (the site key, from the partition
+        folder), ``year``, ``site_name``, ``latitude``, ``longitude`` and the annual
+        budget columns [g C m-2 per year], sorted by site and year.
+    """
+    import pyarrow.dataset as ds
+
+    path = Path(out) / NETWORK_DATASET
+    if not path.is_dir():
+        raise InputFileError(f"{str(path)!r} does not exist: {str(out)!r} is not a batch "
+                             "output folder")
+    files = sorted(path.glob("site=*/*.parquet"))
+    if not files:
+        return pd.DataFrame({"site": pd.Series([], dtype="str")})
+    dataset = ds.dataset([str(f) for f in files], format="parquet",
+                         partitioning=ds.partitioning(pa.schema([("site", pa.string())]),
+                                                      flavor="hive"),
+                         partition_base_dir=str(path))
+    frame = dataset.to_table().to_pandas()
+    ordered = ["site", *[c for c in frame.columns if c != "site"]]
+    return frame[ordered].sort_values(["site", "year"], kind="stable").reset_index(drop=True)
+
+
+def _write_failures(outcomes, out: Path) -> pd.DataFrame:
+    rows = [{"site": o.key, "config": o.config, "error": o.error, "message": o.message,
+             "kind": o.kind} for o in outcomes if o.status == "failed"]
+    frame = pd.DataFrame({name: pd.Series([row[name] for row in rows], dtype="str")
+                          for name in _FAILURE_COLUMNS})
+    write_table(frame.set_index("site"), out / FAILURES_FILE, _FAILURE_COLUMNS, "failures")
+    return frame
+
+
+# --------------------------------------------------------------------------- the batch
+
+def _client(scheduler, workers):
+    """Return (client, cluster or None) for an address or a new local cluster."""
+    try:
+        from dask.distributed import Client, LocalCluster
+    except ImportError:
+        raise ConfigError("fluxpart batch needs Dask: install it with "
+                          "pip install 'fluxpart[batch]' (dask[distributed])") from None
+    if workers is not None and (not isinstance(workers, int) or isinstance(workers, bool)
+                                or workers < 1):
+        raise ConfigError(f"--workers {workers!r}: expected a whole number >= 1")
+    if scheduler:
+        if workers is not None:
+            raise ConfigError("--workers applies to the local cluster only; with --scheduler "
+                              "the cluster's own workers are used")
+        try:
+            return Client(scheduler, timeout=_CONNECT_TIMEOUT_SECONDS), None
+        except (OSError, TimeoutError, ValueError) as error:
+            raise ConfigError(f"--scheduler {scheduler!r}: no Dask scheduler answered within "
+                              f"{_CONNECT_TIMEOUT_SECONDS} s ({type(error).__name__}: {error}); "
+                              "start one with `dask scheduler`, or leave --scheduler out "
+                              "for a local cluster") from None
+    cluster = LocalCluster(n_workers=workers or _DEFAULT_WORKERS, threads_per_worker=1,
+                           processes=True, host="127.0.0.1", dashboard_address=None,
+                           silence_logs=logging.ERROR)
+    try:
+        return Client(cluster), cluster
+    except BaseException:
+        cluster.close()
+        raise
+
+
+def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False,
+              progress=None) -> BatchReport:
+    """Process every site of a network file on Dask and write the network tables.
+
+    Parameters
+    ----------
+    sites_file : str or path-like
+        The network file (``SITES.toml``, see :func:`read_sites_file`).
+    scheduler : str, optional
+        Address of a running Dask scheduler (``tcp://host:port``). Default: a
+        local cluster of `workers` processes with one thread each, listening on
+        127.0.0.1 only, without a dashboard, closed at the end.
+    workers : int, optional
+        Processes of the local cluster; 2 when omitted.
+    out : str or path-like, optional
+        Batch output folder; default ``[batch] out`` of the network file.
+    force : bool, optional
+        Reprocess sites whose result folder is already up to date.
+    progress : callable, optional
+        Called as ``progress(outcome, finished, total)`` each time a site ends
+        (``finished`` counts the sites ended so far, written, skipped or failed).
+
+    Returns
+    -------
+    BatchReport
+        Per-site outcomes and the two network tables.
+
+    Raises
+    ------
+    InputFileError, ConfigError
+        For a bad network file, an unreachable scheduler or a bad worker count;
+        bad site configs or inputs are not raised but reported per site.
+
+    Notes
+    -----
+    Inputs travel as paths: every worker must see the client's file system (one
+    machine or a shared file system). Each site's folder ``out/<key>`` is written
+    by its task exactly as ``fluxpart run SITE.toml --out out/<key>`` does, so the
+    tables are byte-identical to a single run. ``out/network_annual`` and
+    ``out/failures.parquet`` are rewritten on every run and cover the sites of
+    this network file only.
+    """
+    network = read_sites_file(sites_file)
+    out = (Path(out) if out is not None else network.out).resolve()
+    out.mkdir(parents=True, exist_ok=True)
+    client, cluster = _client(scheduler, workers)
+    try:
+        outcomes = _run_tasks(client, network.sites, out, force, progress)
+    finally:
+        client.close()
+        if cluster is not None:
+            cluster.close()
+    failures = _write_failures(outcomes, out)
+    table = _write_network(outcomes, out)
+    return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures)
+
+
+def _run_tasks(client, sites, out: Path, force: bool, progress) -> list[SiteOutcome]:
+    from dask.distributed import as_completed
+
+    futures, run = {}, uuid.uuid4().hex[:8]
+    for position, (key, config) in enumerate(sites):
+        future = client.submit(run_site, key, str(config), str(out / key), force=force,
+                               key=f"fluxpart-site-{key}-{run}")
+        futures[future] = (position, key, config)
+    outcomes = [None] * len(sites)
+    for finished, future in enumerate(as_completed(futures), start=1):
+        position, key, config = futures[future]
+        try:
+            outcome = future.result()
+        except Exception as error:  # a lost worker fails its site only
+            outcome = _failure({"key": key, "config": str(config),
+                                "directory": str(out / key)}, error)
+        outcomes[position] = outcome
+        if progress is not None:
+            progress(outcome, finished, len(sites))
+    return outcomes
+
+
+# --------------------------------------------------------------------------- command line
+
+class _Counter:
+    """Sites done, failed and remaining on one terminal line (stderr)."""
+
+    def __init__(self, total: int, stream):
+        self.total, self.stream = total, stream
+        self.done = self.failed = 0
+        self._bar = None
+        self._show()
+
+    def _show(self):
+        remaining = self.total - self.done - self.failed
+        self.stream.write(f"\rfluxpart batch: {self.done} done, {self.failed} failed, "
+                          f"{remaining} remaining ")
+        self.stream.flush()
+
+    def __call__(self, outcome, finished, total):
+        if outcome.status == "failed":
+            self.failed += 1
+        else:
+            self.done += 1
+        self._show()
+
+    def close(self):
+        self.stream.write("\n")
+        self.stream.flush()
+
+
+def _summary(report: BatchReport) -> str:
+    lines = [f"fluxpart batch: {len(report.outcomes)} site(s): {report.written} processed, "
+             f"{report.skipped} up to date (skipped), {report.failed} failed"]
+    if len(report.network):
+        columns = [c for c in _SUMMARY_COLUMNS if c in report.network.columns]
+        lines += ["", "Annual budgets [g C m-2; NEE < 0 is net uptake]:",
+                  report.network[columns].to_string(
+                      index=False, float_format=lambda v: f"{v:9.1f}")]
+    lines += ["", f"Wrote {report.out}/ (one result folder per site, {NETWORK_DATASET}/, "
+              f"{FAILURES_FILE})", f"Caution: {CAUTION}"]
+    return "\n".join(lines)
+
+
+def command_batch(args) -> int:
+    """Run ``fluxpart batch``; return 0 when every site succeeded, 1 when any failed.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        ``sites`` (the network file), ``scheduler`` (address or None), ``workers``
+        (int or None), ``out`` (folder or None), ``force`` and ``quiet`` (bool).
+
+    Notes
+    -----
+    Inputs travel as paths: with ``--scheduler`` the workers must share the
+    client's file system. A bad network file, worker count or scheduler address
+    raises :class:`~fluxpart.errors.ConfigError`, which the command line prints
+    with exit status 2. Progress (sites done, failed, remaining) goes to stderr
+    only when it is a terminal and ``--quiet`` is not given.
+    """
+    network = read_sites_file(args.sites)
+    show = not args.quiet and sys.stderr.isatty()
+    counter = _Counter(len(network.sites), sys.stderr) if show else None
+    try:
+        report = run_batch(args.sites, scheduler=args.scheduler, workers=args.workers,
+                           out=args.out, force=args.force, progress=counter)
+    finally:
+        if counter is not None:
+            counter.close()
+    print(_summary(report))
+    for outcome in report.outcomes:
+        if outcome.status == "failed":
+            print(f"error: site {outcome.key!r} ({outcome.config}): {outcome.error}: "
+                  f"{outcome.message}", file=sys.stderr)
+            if outcome.traceback:
+                print(outcome.traceback, file=sys.stderr)
+    return report.exit_code
