@@ -82,6 +82,7 @@ _SITE_COLUMNS = {
     "latitude": ("degrees", "latitude of the tower, north positive"),
     "longitude": ("degrees", "longitude of the tower, east positive"),
 }
+_SITE_FIELDS = {"site_name": "name", "latitude": "latitude", "longitude": "longitude"}
 _FAILURE_COLUMNS = {
     "site": ("", "site key (the result folder's name)"),
     "config": ("", "absolute path of the site config"),
@@ -442,8 +443,8 @@ def _failure(common: dict, error: BaseException) -> SiteOutcome:
 def _arrow_annual(outcome: SiteOutcome) -> pa.Table:
     flat = outcome.annual.reset_index()
     site = outcome.site or {}
-    for position, name in enumerate(_SITE_COLUMNS, start=1):
-        flat.insert(position, name, site.get(name))
+    for position, (column, name) in enumerate(_SITE_FIELDS.items(), start=1):
+        flat.insert(position, column, site.get(name))
     return pa.Table.from_pandas(flat, preserve_index=False).replace_schema_metadata(None)
 
 
@@ -655,31 +656,48 @@ def _run_tasks(client, sites, out: Path, force: bool, progress) -> list[SiteOutc
 
 # --------------------------------------------------------------------------- command line
 
-class _Counter:
-    """Sites done, failed and remaining on one terminal line (stderr)."""
+class _SiteProgress:
+    """Sites ended/total, failed and remaining on one terminal line (stderr).
+
+    Uses :class:`fluxpart.progress.Progress` where present, else a plain line.
+    """
 
     def __init__(self, total: int, stream):
-        self.total, self.stream = total, stream
-        self.done = self.failed = 0
-        self._bar = None
-        self._show()
+        self.total, self.stream, self.failed = total, stream, 0
+        self._width = len(str(total))
+        try:
+            from .progress import Progress
+        except ImportError:
+            self._bar = None
+        else:
+            self._bar = Progress(total, self._label(), stream=stream, enabled=True)
+        self._show(0)
 
-    def _show(self):
-        remaining = self.total - self.done - self.failed
-        self.stream.write(f"\rfluxpart batch: {self.done} done, {self.failed} failed, "
-                          f"{remaining} remaining ")
-        self.stream.flush()
+    def _label(self, ended: int = 0) -> str:
+        return (f"fluxpart batch, sites ({self.failed} failed, "
+                f"{self.total - ended:>{self._width}} remaining)")
+
+    def _show(self, ended: int) -> None:
+        if self._bar is None:
+            self.stream.write(f"\r{self._label(ended)}: {ended}/{self.total}")
+            self.stream.flush()
+        elif ended == 0:
+            self._bar.__enter__()
 
     def __call__(self, outcome, finished, total):
-        if outcome.status == "failed":
-            self.failed += 1
+        self.failed += outcome.status == "failed"
+        if self._bar is None:
+            self._show(finished)
         else:
-            self.done += 1
-        self._show()
+            self._bar.label = self._label(finished)
+            self._bar.advance()
 
-    def close(self):
-        self.stream.write("\n")
-        self.stream.flush()
+    def close(self) -> None:
+        if self._bar is None:
+            self.stream.write("\n")
+            self.stream.flush()
+        else:
+            self._bar.close()
 
 
 def _summary(report: BatchReport) -> str:
@@ -714,7 +732,7 @@ def command_batch(args) -> int:
     """
     network = read_sites_file(args.sites)
     show = not args.quiet and sys.stderr.isatty()
-    counter = _Counter(len(network.sites), sys.stderr) if show else None
+    counter = _SiteProgress(len(network.sites), sys.stderr) if show else None
     try:
         report = run_batch(args.sites, scheduler=args.scheduler, workers=args.workers,
                            out=args.out, force=args.force, progress=counter)

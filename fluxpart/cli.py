@@ -23,13 +23,30 @@ def _format_annual(annual) -> str:
     return annual[columns].to_string(float_format=lambda v: f"{v:9.1f}")
 
 
+def _progress_bar(config, quiet):
+    """A progress bar for :func:`fluxpart.process` and the callback that advances it."""
+    from .pipeline import stage_count
+    from .progress import Progress, progress_enabled
+
+    bar = Progress(stage_count(config), "processing", enabled=progress_enabled(quiet))
+
+    def advance(label):
+        bar.label = f"processing: {label}"
+        bar.advance()
+    return bar, advance
+
+
 def _command_demo(args) -> int:
     from . import demo
+    from .config import Config
     from .pipeline import process
 
     frame, truth = demo.site_year(seed=args.seed)
     site = demo.site()
-    result = process(frame, site, provenance={"demo": {"seed": args.seed, "variant": "c3"}})
+    bar, advance = _progress_bar(Config(), args.quiet)
+    with bar:
+        result = process(frame, site, provenance={"demo": {"seed": args.seed, "variant": "c3"}},
+                         progress=advance)
     out = Path(args.out)
     result.write(out)
     print(f"fluxpart demo: {site.name} (a fictional site), {frame.index[0]:%Y-%m-%d} to "
@@ -40,14 +57,25 @@ def _command_demo(args) -> int:
     print(demo.compare_with_truth(result.annual, truth).to_string(
         formatters={"relative_error": "{:+.1%}".format}, float_format=lambda v: f"{v:9.1f}"))
     print(f"\nWrote {out}/ (Parquet tables and manifest.json)")
+    try:
+        from .report import build_report
+
+        page = build_report(out)
+        print(f"Report page: {page}")
+    except FluxpartError as error:
+        print(f"No report page: {error}")
     print(f"Caution: {CAUTION}")
     return 0
 
 
 def _command_run(args) -> int:
+    from .config import Config
     from .pipeline import process_site_config
 
-    result = process_site_config(args.config)
+    config = Config.from_toml(args.config)
+    bar, advance = _progress_bar(config, args.quiet)
+    with bar:
+        result = process_site_config(args.config, config, progress=advance)
     out = Path(args.out) if args.out else Path(args.config).with_suffix("").parent / (
         Path(args.config).stem + "-output")
     result.write(out)
@@ -91,11 +119,13 @@ def _parser() -> argparse.ArgumentParser:
     demo = commands.add_parser("demo", help="run the full pipeline on the invented demo site")
     demo.add_argument("--out", default="fluxpart-demo", help="output folder (default: %(default)s)")
     demo.add_argument("--seed", type=int, default=0, help="seed of the demo data (default: 0)")
+    demo.add_argument("--quiet", action="store_true", help="no progress output")
     demo.set_defaults(handler=_command_demo)
 
     run = commands.add_parser("run", help="process one site config (one or more years)")
     run.add_argument("config", help="site config (TOML)")
     run.add_argument("--out", help="output folder (default: <config name>-output beside it)")
+    run.add_argument("--quiet", action="store_true", help="no progress output")
     run.set_defaults(handler=_command_run)
 
     check = commands.add_parser("check", help="validate the input only: coverage, gaps, problems")

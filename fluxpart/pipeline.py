@@ -30,7 +30,7 @@ from .partition import daytime, nighttime
 from .site import Site
 from .variables import REQUIRED, VARIABLES
 
-__all__ = ["Result", "process", "process_site_config", "screening_summary"]
+__all__ = ["Result", "process", "process_site_config", "screening_summary", "stage_count"]
 
 _BUDGET_FLUXES = {"nee_filled": "nee", "gpp_nighttime": "gpp_nighttime",
                   "reco_nighttime": "reco_nighttime", "gpp_daytime": "gpp_daytime",
@@ -248,8 +248,15 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
     return too_calm, nee_measured, filled, night, day
 
 
+def stage_count(config: Config) -> int:
+    """Number of progress steps :func:`process` reports for `config`."""
+    scenarios = (len(config.ustar_scenarios) if config.ustar_method != "fixed"
+                 and config.ustar_bootstrap_draws > 0 else 0)
+    return 3 + 1 + scenarios
+
+
 def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
-            provenance: dict | None = None) -> Result:
+            provenance: dict | None = None, progress=None) -> Result:
     """Turn a canonical site record into gap-filled, partitioned fluxes and budgets.
 
     Parameters
@@ -265,6 +272,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         Settings; ``Config()`` (the published defaults) when omitted.
     provenance : dict, optional
         Facts about the input recorded in the manifest (file paths and hashes).
+    progress : callable, optional
+        Called as ``progress(label)`` after each of the :func:`stage_count` steps
+        (screening, u* threshold and bootstrap, each u* scenario, budgets).
 
     Returns
     -------
@@ -284,12 +294,15 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     frame.index = frame.index.rename("time")
     temperature = _temperature(config, frame)
     warnings = []
+    step = progress if progress is not None else (lambda label: None)
 
     geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     screened = screens.screened
+    step("screened")
 
     ustar_table, ustar_draws, central, scenario_thresholds = _ustar_thresholds(
         frame, screened, is_night, site, config)
+    step("u* threshold")
     if (ustar_table["source"] == "fallback").any():
         years = sorted(set(ustar_table.loc[ustar_table["source"] == "fallback", "year"]))
         warnings.append(f"u* threshold not detectable in {', '.join(map(str, years))}: the fixed "
@@ -306,7 +319,10 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     with ThreadPoolExecutor(max_workers=min(2, len(runs))) as pool:
         futures = {name: pool.submit(_fill_and_partition, *arguments, threshold, temperature,
                                      config) for name, threshold in runs.items()}
-        outcomes = {name: future.result() for name, future in futures.items()}
+        outcomes = {}
+        for name, future in futures.items():
+            outcomes[name] = future.result()
+            step(f"gap filling and partitioning ({name})")
 
     too_calm, nee_measured, filled, night, day = outcomes["central"]
     flags = screens.flags.assign(nee_low_ustar=too_calm)
@@ -332,6 +348,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     monthly = agreement.method_agreement(budgets.monthly, config.agreement_margin)
     annual = agreement.method_agreement(budgets.annual, config.agreement_margin)
     warnings.extend(agreement.disagreements(annual, config.agreement_margin))
+    step("budgets")
     annual = annual.assign(ustar_threshold=central.reindex(annual.index).to_numpy())
     annual = _scenario_spread(annual, outcomes, frame.index, interval)
     counts = screens.counts.copy()
@@ -374,7 +391,7 @@ def _scenario_spread(annual, outcomes, index, interval) -> pd.DataFrame:
     return out
 
 
-def process_site_config(path, config: Config | None = None) -> Result:
+def process_site_config(path, config: Config | None = None, *, progress=None) -> Result:
     """Read a site config (TOML) and its input file, then :func:`process` them.
 
     The input file's path and SHA-256 and the config file's SHA-256 are recorded
@@ -391,4 +408,4 @@ def process_site_config(path, config: Config | None = None) -> Result:
         "input": {"path": str(site_config.input_path), "sha256": file_sha256(
             site_config.input_path)},
     }
-    return process(frame, site_config.site, config, provenance=provenance)
+    return process(frame, site_config.site, config, provenance=provenance, progress=progress)

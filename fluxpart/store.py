@@ -26,6 +26,9 @@ from .errors import InputFileError
 __all__ = ["atomic_write_bytes", "column_units", "file_sha256", "read_table", "write_table"]
 
 _SCHEMA_KEY = b"fluxpart"
+# Result files are meant to be shared: readable by all, writable by the owner
+# (mkstemp would leave them 0600).
+_FILE_MODE = 0o644
 
 
 def file_sha256(path) -> str:
@@ -47,6 +50,7 @@ def atomic_write_bytes(path, data: bytes) -> None:
             stream.write(data)
             stream.flush()
             os.fsync(stream.fileno())
+        os.chmod(temporary, _FILE_MODE)
         os.replace(temporary, path)
     except BaseException:
         Path(temporary).unlink(missing_ok=True)

@@ -1,0 +1,369 @@
+"""Tests of fluxpart.batch: many sites on Dask (issue "Many sites on Dask: fluxpart batch").
+
+The sites are the invented Quillmoor towers of :mod:`fluxpart.demo` (hourly records,
+a shortened u* bootstrap) to keep each site under a second. Clusters listen on
+127.0.0.1 only and are shut down by the test that started them. The references
+outside the project are: ``fluxpart run`` on the same config for the per-site
+folders, :mod:`hashlib` SHA-256 for the manifest hashes, and :mod:`pyarrow.dataset`
+reading the Hive-style partitioned network table (``site=<key>/`` folders, common
+practice of Arrow readers).
+"""
+
+import hashlib
+import os
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+import pandas as pd
+import pytest
+
+distributed = pytest.importorskip("distributed")
+
+import pyarrow.dataset as ds  # noqa: E402
+import pyarrow.parquet as pq  # noqa: E402
+
+from fluxpart import batch  # noqa: E402
+from fluxpart.cli import main  # noqa: E402
+from fluxpart.demo import write_example  # noqa: E402
+from fluxpart.errors import ConfigError, InputFileError  # noqa: E402
+from fluxpart.store import read_table  # noqa: E402
+
+REPOSITORY = Path(__file__).resolve().parent.parent
+SEEDS = {"tower0": (0, "c3"), "tower1": (1, "c4"), "tower2": (2, "c3")}
+
+
+def _write_tower(directory: Path, name: str, seed: int, variant: str) -> Path:
+    """Write an hourly invented tower with a short u* bootstrap; return its config."""
+    written = write_example(directory / name, seed=seed, variant=variant, interval_minutes=60)
+    config = written.with_name(f"{name}.toml")
+    config.write_text(written.read_text(encoding="utf-8") + "ustar_bootstrap_draws = 10\n",
+                      encoding="utf-8")
+    written.unlink()
+    return config
+
+
+def _write_bad_tower(directory: Path, good: Path) -> Path:
+    """A site config whose column map names a column the file does not have."""
+    text = good.read_text(encoding="utf-8")
+    csv_name = text.split('path = "', 1)[1].split('"', 1)[0]
+    csv_path = (good.parent / csv_name).resolve().as_posix()
+    text = text.replace(f'path = "{csv_name}"', f'path = "{csv_path}"')
+    text = text.replace('nee = "co2_exchange"', 'nee = "co2_flux_nowhere"')
+    (directory / "broken").mkdir(parents=True, exist_ok=True)
+    config = directory / "broken" / "broken.toml"
+    config.write_text(text, encoding="utf-8")
+    return config
+
+
+def _network_file(directory: Path, sites, out="network-output") -> Path:
+    listed = ", ".join(f'"{s}"' for s in sites)
+    path = directory / "SITES.toml"
+    path.write_text(f'[batch]\nsites = [{listed}]\nout = "{out}"\n', encoding="utf-8")
+    return path
+
+
+@pytest.fixture(scope="module")
+def towers(tmp_path_factory):
+    """Three good invented towers in their own folders under ``sites/``."""
+    root = tmp_path_factory.mktemp("network")
+    configs = {name: _write_tower(root / "sites", name, seed, variant)
+               for name, (seed, variant) in SEEDS.items()}
+    return root, configs
+
+
+@pytest.fixture(scope="module")
+def cluster():
+    """A local Dask cluster of two worker processes on 127.0.0.1, shut down afterwards."""
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                  host="127.0.0.1", dashboard_address=None) as local:
+        yield local
+
+
+def _snapshot(directory: Path) -> dict:
+    """Relative path -> (bytes, modification time [ns]) of every file below `directory`."""
+    return {str(p.relative_to(directory)): (p.read_bytes(), p.stat().st_mtime_ns)
+            for p in sorted(directory.rglob("*")) if p.is_file()}
+
+
+# --------------------------------------------------------------------------- the network file
+
+def test_read_sites_file_expands_sorted_globs_and_makes_unique_keys(tmp_path):
+    """Globs are relative to the file and sorted; duplicate stems get their folder's name."""
+    for folder in ("b", "a"):
+        (tmp_path / "towers" / folder).mkdir(parents=True)
+        (tmp_path / "towers" / folder / "tower.toml").write_text("", encoding="utf-8")
+    (tmp_path / "towers" / "a" / "notes.txt").write_text("", encoding="utf-8")
+    (tmp_path / "fen site.toml").write_text("", encoding="utf-8")
+    path = _network_file(tmp_path, ["towers/*/*", "fen site.toml", "towers/a/tower.toml"],
+                         out="results")
+    network = batch.read_sites_file(path)
+    assert network.out == tmp_path.resolve() / "results"
+    assert [key for key, _ in network.sites] == ["a-tower", "b-tower", "fen_site"]
+    assert [config for _, config in network.sites] == [
+        (tmp_path / "towers/a/tower.toml").resolve(), (tmp_path / "towers/b/tower.toml").resolve(),
+        (tmp_path / "fen site.toml").resolve()]
+
+
+def test_read_sites_file_default_out_is_beside_the_file(tmp_path):
+    """Without ``out`` the output folder is ``<stem>-output`` beside the network file."""
+    (tmp_path / "x.toml").write_text("", encoding="utf-8")
+    (tmp_path / "towers.toml").write_text('[batch]\nsites = ["x.toml"]\n', encoding="utf-8")
+    assert batch.read_sites_file(tmp_path / "towers.toml").out == tmp_path.resolve() / \
+        "towers-output"
+
+
+@pytest.mark.parametrize("text, match", [
+    ('[batch]\nsite = ["x.toml"]\n', r"\[batch\] site: unknown setting; did you mean 'sites'"),
+    ('[bacth]\nsites = ["x.toml"]\n', r"unknown table \[bacth\]; did you mean 'batch'"),
+    ('[batch]\nout = "o"\n', r"\[batch\] sites is missing"),
+    ('[batch]\nsites = []\n', r"expected a non-empty list"),
+    ('[batch]\nsites = ["towers/*.toml"]\n', r"sites\[0\] = 'towers/\*.toml' matches no .toml"),
+    ('[batch]\nsites = ["x.toml", "nowhere.toml"]\n', r"sites\[1\] = 'nowhere.toml': no such"),
+    ('[batch]\nsites = ["x.toml"]\nout = 3\n', r"\[batch\] out = 3"),
+    ('[batch\n', r"not valid TOML"),
+])
+def test_read_sites_file_rejects_bad_files(tmp_path, text, match):
+    """Unknown keys suggest the nearest valid one; an empty match or missing file is named."""
+    (tmp_path / "x.toml").write_text("", encoding="utf-8")
+    (tmp_path / "SITES.toml").write_text(text, encoding="utf-8")
+    with pytest.raises(ConfigError, match=match):
+        batch.read_sites_file(tmp_path / "SITES.toml")
+
+
+def test_bad_network_file_exits_2(tmp_path, capsys):
+    """A bad SITES.toml (or a missing one) is a user error: exit status 2, one line."""
+    (tmp_path / "SITES.toml").write_text('[batch]\nsites = ["none/*.toml"]\n', encoding="utf-8")
+    assert main(["batch", str(tmp_path / "SITES.toml"), "--quiet"]) == 2
+    assert "matches no .toml file" in capsys.readouterr().err
+    with pytest.raises(InputFileError, match="does not exist"):
+        batch.read_sites_file(tmp_path / "missing.toml")
+
+
+def test_example_network_file_lists_the_example_sites():
+    """examples/network.toml parses and names the four invented example towers."""
+    network = batch.read_sites_file(REPOSITORY / "examples" / "network.toml")
+    assert [key for key, _ in network.sites] == [
+        "quillmoor_grassland", "east_meadow", "north_meadow", "south_maize"]
+    assert all(config.is_file() for _, config in network.sites)
+
+
+@pytest.mark.parametrize("extra, match", [
+    (["--workers", "0"], r"--workers 0: expected a whole number >= 1"),
+    (["--workers", "2", "--scheduler", "tcp://127.0.0.1:9"], r"--workers applies to the local"),
+])
+def test_bad_worker_options_exit_2(towers, tmp_path, capsys, extra, match):
+    """Worker options are checked before any cluster starts."""
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(configs["tower0"])])
+    assert main(["batch", str(sites), "--quiet", *extra]) == 2
+    assert pd.Series([capsys.readouterr().err]).str.contains(match).all()
+
+
+def test_unreachable_scheduler_is_a_clear_error(towers, tmp_path, monkeypatch):
+    """A scheduler address where nothing listens gives a ConfigError naming it."""
+    monkeypatch.setattr(batch, "_CONNECT_TIMEOUT_SECONDS", 1)
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(configs["tower0"])])
+    with pytest.raises(ConfigError, match=r"--scheduler 'tcp://127.0.0.1:9': no Dask scheduler"):
+        batch.run_batch(sites, scheduler="tcp://127.0.0.1:9")
+
+
+# --------------------------------------------------------------------------- one site
+
+def test_run_site_reports_failures_instead_of_raising(towers, tmp_path, monkeypatch):
+    """A bad input is an 'input' failure; any other exception an 'internal' one with traceback."""
+    root, configs = towers
+    bad = _write_bad_tower(tmp_path, configs["tower0"])
+    outcome = batch.run_site("broken", bad, tmp_path / "out" / "broken")
+    assert (outcome.status, outcome.kind, outcome.error) == ("failed", "input",
+                                                             "MissingColumnError")
+    assert "co2_flux_nowhere" in outcome.message
+    assert not (tmp_path / "out").exists()
+
+    def explode(path):
+        raise ZeroDivisionError("a fault inside")
+
+    monkeypatch.setattr("fluxpart.pipeline.process_site_config", explode)
+    outcome = batch.run_site("tower0", configs["tower0"], tmp_path / "out" / "tower0")
+    assert (outcome.status, outcome.kind, outcome.error) == ("failed", "internal",
+                                                             "ZeroDivisionError")
+    assert "explode" in outcome.traceback
+
+
+def test_is_up_to_date_checks_hashes_settings_and_versions(towers, tmp_path, monkeypatch):
+    """A result folder is current only with the same config, input, versions and table bytes."""
+    root, configs = towers
+    config, folder = configs["tower2"], tmp_path / "tower2"
+    assert not batch.is_up_to_date(config, folder)                      # nothing written yet
+    assert main(["run", str(config), "--out", str(folder)]) == 0
+    assert batch.is_up_to_date(config, folder)
+
+    versions = batch.library_versions()
+    monkeypatch.setattr(batch, "library_versions", lambda: {**versions, "numpy": "0.0"})
+    assert batch._stale_reason(config, folder) == "library versions changed"
+    monkeypatch.undo()
+
+    daily = folder / "daily.parquet"
+    original = daily.read_bytes()
+    daily.write_bytes(original + b"\0")
+    assert batch._stale_reason(config, folder) == "table 'daily.parquet' changed"
+    daily.unlink()
+    assert batch._stale_reason(config, folder) == "table 'daily.parquet' missing"
+    daily.write_bytes(original)
+    assert batch.is_up_to_date(config, folder)
+
+
+# --------------------------------------------------------------------------- whole batches
+
+def test_batch_is_byte_identical_to_fluxpart_run(towers, tmp_path, capsys):
+    """Each site's folder from the default local cluster equals ``fluxpart run`` on it."""
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(c) for c in configs.values()])
+    assert main(["batch", str(sites), "--quiet"]) == 0
+    printed = capsys.readouterr().out
+    assert "3 processed, 0 up to date (skipped), 0 failed" in printed
+    out = tmp_path / "network-output"
+    for key, config in configs.items():
+        single = tmp_path / "single" / key
+        assert main(["run", str(config), "--out", str(single)]) == 0
+        from_batch = _snapshot(out / key)
+        from_run = _snapshot(single)
+        assert sorted(from_batch) == sorted(from_run)
+        assert any(name.endswith(".parquet") for name in from_run)
+        for name in from_run:
+            assert from_batch[name][0] == from_run[name][0], f"{key}/{name} differs"
+        manifest = batch.read_manifest(out / key)
+        for entry in manifest["tables"].values():
+            # hashlib is the reference for the recorded SHA-256 of each table
+            data = (out / key / entry["file"]).read_bytes()
+            assert entry["sha256"] == hashlib.sha256(data).hexdigest()
+
+
+def test_external_scheduler_and_workers(towers, tmp_path):
+    """A batch runs on a `dask scheduler` + `dask worker` pair on 127.0.0.1 via --scheduler."""
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(configs["tower0"]), str(configs["tower1"])])
+    scheduler_file = tmp_path / "scheduler.json"
+    env = {**os.environ, "PYTHONPATH": os.pathsep.join(
+        [str(REPOSITORY), *filter(None, [os.environ.get("PYTHONPATH")])])}
+    common = {"env": env, "cwd": tmp_path, "stdout": subprocess.DEVNULL,
+              "stderr": subprocess.DEVNULL}
+    processes = [subprocess.Popen(
+        [sys.executable, "-m", "distributed.cli.dask_scheduler", "--host", "127.0.0.1",
+         "--port", "0", "--no-dashboard", "--dashboard-address", "127.0.0.1:0",
+         "--scheduler-file", str(scheduler_file)], **common)]
+    try:
+        deadline = time.monotonic() + 60
+        while not scheduler_file.exists() and time.monotonic() < deadline:
+            time.sleep(0.2)
+        processes.append(subprocess.Popen(
+            [sys.executable, "-m", "distributed.cli.dask_worker", "--nworkers", "2",
+             "--nthreads", "1", "--host", "127.0.0.1", "--no-dashboard",
+             "--dashboard-address", "127.0.0.1:0", "--scheduler-file", str(scheduler_file)],
+            **common))
+        with distributed.Client(scheduler_file=str(scheduler_file), timeout=30) as client:
+            client.wait_for_workers(2, timeout=60)
+            address = client.scheduler.address
+            hosts = {info["host"] for info in client.scheduler_info()["workers"].values()}
+            assert address.startswith("tcp://127.0.0.1:") and hosts == {"127.0.0.1"}
+            report = batch.run_batch(sites, scheduler=address)
+            assert len(client.scheduler_info()["workers"]) == 2     # still the same cluster
+        assert (report.written, report.failed, report.exit_code) == (2, 0, 0)
+        for key in ("tower0", "tower1"):
+            assert batch.is_up_to_date(configs[key], report.out / key)
+    finally:
+        for process in reversed(processes):
+            process.terminate()
+        for process in reversed(processes):
+            try:
+                process.wait(timeout=30)
+            except subprocess.TimeoutExpired:
+                process.kill()
+                process.wait(timeout=10)
+
+
+def test_bad_site_fails_alone_and_reruns_skip(towers, tmp_path, cluster, capsys):
+    """One bad site: the others complete, exit 1, failures.parquet names it; reruns skip."""
+    root, configs = towers
+    bad = _write_bad_tower(tmp_path, configs["tower0"])
+    sites = _network_file(tmp_path, [*(str(c) for c in configs.values()), str(bad)])
+    out = tmp_path / "network-output"
+    args = ["batch", str(sites), "--scheduler", cluster.scheduler_address, "--quiet"]
+    assert main(args) == 1
+    captured = capsys.readouterr()
+    assert "3 processed, 0 up to date (skipped), 1 failed" in captured.out
+    assert "site 'broken'" in captured.err and "MissingColumnError" in captured.err
+
+    failures = pd.read_parquet(out / "failures.parquet")
+    assert failures["site"].tolist() == ["broken"]
+    assert failures["config"].tolist() == [str(bad.resolve())]
+    assert failures["error"].tolist() == ["MissingColumnError"]
+    assert failures["kind"].tolist() == ["input"]
+    assert "co2_flux_nowhere" in failures["message"].iloc[0]
+    for key in configs:
+        assert (out / key / "manifest.json").is_file()
+    assert not (out / "broken").exists()
+
+    first = _snapshot(out)
+    calls = []
+    report = batch.run_batch(sites, scheduler=cluster.scheduler_address,
+                             progress=lambda outcome, finished, total: calls.append(
+                                 (outcome.key, outcome.status, finished, total)))
+    assert (report.written, report.skipped, report.failed) == (0, 3, 1)
+    assert sorted(c[2] for c in calls) == [1, 2, 3, 4] and {c[3] for c in calls} == {4}
+    assert {c[0]: c[1] for c in calls} == {"tower0": "skipped", "tower1": "skipped",
+                                           "tower2": "skipped", "broken": "failed"}
+    second = _snapshot(out)
+    for name, (data, mtime) in first.items():        # site folders untouched, tables equal
+        assert second[name][0] == data
+        if name.startswith("tower"):
+            assert second[name][1] == mtime
+
+    edited = configs["tower1"].read_text(encoding="utf-8") + "# a comment changes the hash\n"
+    original = configs["tower1"].read_text(encoding="utf-8")
+    try:
+        configs["tower1"].write_text(edited, encoding="utf-8")
+        report = batch.run_batch(sites, scheduler=cluster.scheduler_address)
+    finally:
+        configs["tower1"].write_text(original, encoding="utf-8")
+    by_key = {o.key: o for o in report.outcomes}
+    assert (by_key["tower1"].status, by_key["tower1"].note) == ("written",
+                                                               "site config changed")
+    assert by_key["tower0"].status == by_key["tower2"].status == "skipped"
+
+    report = batch.run_batch(sites, scheduler=cluster.scheduler_address, force=True)
+    assert (report.written, report.skipped, report.failed) == (3, 0, 1)
+    forced = _snapshot(out)
+    assert sorted(forced) == sorted(first)
+    for name, (data, _) in first.items():                 # same input: the same bytes
+        assert forced[name][0] == data, f"{name} changed on a forced rerun"
+
+
+def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster):
+    """pyarrow.dataset and pandas read the partitioned network table; rows match each site."""
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(c) for c in configs.values()])
+    report = batch.run_batch(sites, scheduler=cluster.scheduler_address)
+    folder = report.out / batch.NETWORK_DATASET
+    assert sorted(p.name for p in folder.iterdir()) == [f"site={k}" for k in sorted(configs)]
+
+    # pyarrow.dataset with Hive partitioning is the reference reader of the layout
+    dataset = ds.dataset(folder, format="parquet", partitioning="hive")
+    table = dataset.to_table().to_pandas()
+    assert sorted(table["site"].astype(str).unique()) == sorted(configs)
+    assert pq.read_schema(folder / "site=tower0" / "part-0.parquet").field(
+        "nee").metadata[b"unit"] == b"g C m-2"
+
+    frame = pd.read_parquet(folder)
+    assert "site" in frame.columns and len(frame) == len(table) == len(report.network)
+    for key in configs:
+        expected = read_table(report.out / key / "annual.parquet").reset_index()
+        got = (report.network[report.network["site"] == key]
+               .drop(columns=["site", "site_name", "latitude", "longitude"])
+               .reset_index(drop=True))
+        pd.testing.assert_frame_equal(got[expected.columns], expected, check_dtype=False)
+        rows = frame[frame["site"].astype(str) == key]
+        assert rows["site_name"].iloc[0].endswith("(fictional)")
+    assert report.failures.empty and pq.read_table(report.out / "failures.parquet").num_rows == 0

@@ -1,0 +1,105 @@
+"""The progress indicator: silent off a terminal, one rewritten line on one."""
+
+import io
+import threading
+
+import pytest
+
+from fluxpart.progress import Progress, progress_enabled
+
+
+class _Terminal(io.StringIO):
+    """A text stream that says it is a terminal."""
+
+    def isatty(self):
+        return True
+
+
+class _Closed(io.StringIO):
+    """A stream whose isatty fails, as a closed file's does."""
+
+    def isatty(self):
+        raise ValueError("I/O operation on closed file")
+
+
+def test_silent_when_the_stream_is_not_a_terminal():
+    """A pipe or file (not a tty) receives nothing, however many steps are counted."""
+    stream = io.StringIO()
+    with Progress(5, "bootstrap", stream=stream) as progress:
+        for _ in range(5):
+            progress.advance()
+    assert stream.getvalue() == ""
+    assert progress.done == 5 and progress.enabled is False
+
+
+def test_writes_carriage_return_updates_when_forced():
+    """Forced on, it rewrites one line with \\r and ends it with a newline."""
+    stream = io.StringIO()
+    with Progress(4, "figures", stream=stream, enabled=True) as progress:
+        progress.advance()
+        progress.advance(3)
+    text = stream.getvalue()
+    assert text.startswith("\rfigures: 0/4 (  0 %)")
+    assert "\rfigures: 1/4 ( 25 %)" in text
+    assert text.endswith("\rfigures: 4/4 (100 %)\n")
+    assert text.count("\n") == 1
+
+
+def test_a_terminal_enables_it_by_default():
+    """On a terminal it is on unless forced off."""
+    terminal = _Terminal()
+    with Progress(2, "sites", stream=terminal) as progress:
+        progress.advance(2)
+    assert "sites: 2/2" in terminal.getvalue()
+    silent = _Terminal()
+    with Progress(2, "sites", stream=silent, enabled=False) as progress:
+        progress.advance(2)
+    assert silent.getvalue() == ""
+
+
+def test_progress_enabled_needs_a_terminal_and_no_quiet():
+    """progress_enabled: on only for a terminal without --quiet; a closed stream is off."""
+    assert progress_enabled(False, _Terminal()) is True
+    assert progress_enabled(True, _Terminal()) is False
+    assert progress_enabled(False, io.StringIO()) is False
+    assert progress_enabled(False, _Closed()) is False
+    assert progress_enabled(False, object()) is False
+
+
+def test_updates_are_throttled_to_whole_percent_steps():
+    """Ten thousand steps write at most one update per whole percent (plus start and end)."""
+    stream = io.StringIO()
+    with Progress(10_000, "draws", stream=stream, enabled=True) as progress:
+        for _ in range(10_000):
+            progress.advance()
+    assert 100 <= stream.getvalue().count("\r") <= 103
+
+
+def test_unknown_total_counts_up():
+    """A total of 0 shows the running count without a percentage."""
+    stream = io.StringIO()
+    with Progress(0, "records", stream=stream, enabled=True) as progress:
+        progress.advance(7)
+    assert stream.getvalue().endswith("\rrecords: 7\n")
+
+
+def test_advance_from_threads_counts_every_step():
+    """Steps counted from several threads (the scenario pool) are all counted."""
+    stream = io.StringIO()
+    progress = Progress(400, "scenarios", stream=stream, enabled=True)
+    workers = [threading.Thread(target=lambda: [progress.advance() for _ in range(100)])
+               for _ in range(4)]
+    for worker in workers:
+        worker.start()
+    for worker in workers:
+        worker.join()
+    progress.close()
+    assert progress.done == 400
+    assert stream.getvalue().endswith("400/400 (100 %)\n")
+
+
+@pytest.mark.parametrize("total", [-1, 2.5, True, "3"])
+def test_bad_total_is_a_clear_error(total):
+    """A negative or non-integer total is rejected, naming the value."""
+    with pytest.raises(ValueError, match="Progress total"):
+        Progress(total, "x")

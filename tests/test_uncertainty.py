@@ -1,0 +1,347 @@
+"""Random error of NEE, Monte Carlo annual sums, the uncertainty budget, t CO2 ha-1."""
+
+import numpy as np
+import pandas as pd
+import pytest
+import scipy
+from conftest import load_reference
+from scipy import integrate, stats
+
+from fluxpart import demo
+from fluxpart.config import Config
+from fluxpart.errors import InsufficientDataError, MissingColumnError, SpacingError
+from fluxpart.pipeline import process
+from fluxpart.uncertainty import (
+    ANNUAL_COLUMNS,
+    carbon_accounting_units,
+    draw_random_errors,
+    monte_carlo_sums,
+    paired_differences,
+    random_error_model,
+    record_random_error,
+    timeseries_random_error,
+    uncertainty_budget,
+)
+
+REFERENCE = load_reference("uncertainty")
+
+
+@pytest.fixture(scope="module")
+def demo_result():
+    """One processed demo year (few u* bootstrap draws, so the scenario columns exist)."""
+    frame, truth = demo.site_year(seed=0)
+    return process(frame, demo.site(), Config(ustar_bootstrap_draws=10)), truth
+
+
+@pytest.fixture(scope="module")
+def demo_sigma(demo_result):
+    """Per-record random error of the demo year and its model."""
+    return timeseries_random_error(demo_result[0].timeseries)
+
+
+def _known_truth_record(days=365, seed=1, interval=30, cloudy_share=0.2):
+    """Invented record with a planted sigma(|NEE|) (known-truth recovery only).
+
+    Drivers repeat from day to day apart from a slow season, and a fifth of the
+    days are cloudy (Rg x 0.3, uptake x 0.3), so only pairs that pass the
+    similarity criteria have nearly equal true fluxes.
+    """
+    rng = np.random.default_rng(seed)
+    per_day = 1440 // interval
+    index = pd.date_range("2023-01-01", periods=days * per_day, freq=f"{interval}min")
+    hour = (index.hour + index.minute / 60 + interval / 120).to_numpy()
+    season_day = (index.day_of_year - 1).to_numpy() + hour / 24
+    light = np.clip(np.sin((hour - 6) / 12 * np.pi), 0, None)
+    cloudy = (rng.random(days) < cloudy_share)[np.arange(days).repeat(per_day)]
+    clear = np.where(cloudy, 0.3, 1.0)
+    season = 0.5 - 0.5 * np.cos(2 * np.pi * season_day / 365)
+    rg = (300 + 600 * season) * light * clear
+    tair = 2 + 20 * season + 4 * np.sin((hour - 9) / 24 * 2 * np.pi)
+    vpd = 1 + 10 * season * light
+    nee_true = 2 * np.exp(0.069 * (tair - 10)) - 25 * season * light * clear
+    sigma = np.where(nee_true < 0, 0.6 + 0.12 * np.abs(nee_true), 0.4 + 0.2 * np.abs(nee_true))
+    nee = nee_true + rng.laplace(0.0, sigma / np.sqrt(2), nee_true.size)
+    nee[rng.random(nee.size) < 0.3] = np.nan
+    return index, nee, rg, tair, vpd
+
+
+def _planted_sigma(nee):
+    nee = np.asarray(nee, dtype=float)
+    return np.where(nee < 0, 0.6 + 0.12 * np.abs(nee), 0.4 + 0.2 * np.abs(nee))
+
+
+# --------------------------------------------------------------------------- Laplace draws
+
+def test_laplace_draws_match_scipy_moments(rng):
+    """Drawn errors have the Laplace variance 2b^2 and excess kurtosis 3 of scipy.stats.laplace."""
+    sigma = np.full(1000, 2.0)
+    errors = draw_random_errors(sigma, 1000, rng).ravel()
+    scale = 2.0 / np.sqrt(2.0)
+    # scipy.stats.laplace(scale=b).stats(moments="vk"), SciPy version printed on failure.
+    variance, kurtosis = stats.laplace(scale=scale).stats(moments="vk")
+    assert float(variance) == pytest.approx(REFERENCE["laplace"]["variance_per_scale_squared"]
+                                            * scale**2)
+    assert float(kurtosis) == pytest.approx(REFERENCE["laplace"]["excess_kurtosis"])
+    # 1e6 draws: s.e. of the variance 0.22 % (sqrt(5/n)), of the kurtosis 0.05
+    # (sqrt(2484/n) for Laplace); tolerances are about five standard errors.
+    assert errors.var() == pytest.approx(float(variance), rel=0.012), scipy.__version__
+    assert stats.kurtosis(errors) == pytest.approx(float(kurtosis), abs=0.25), scipy.__version__
+    assert abs(errors.mean()) < 5 * 2.0 / 1000
+    # The whole distribution, against scipy.stats.laplace's cdf (Kolmogorov–Smirnov).
+    assert stats.kstest(errors[:20000], stats.laplace(scale=scale).cdf).pvalue > 1e-3
+
+
+def test_laplace_draws_keep_nan_and_zero():
+    """A NaN sigma draws NaN, a zero sigma draws exactly zero."""
+    errors = draw_random_errors([np.nan, 0.0, 1.0], 4, np.random.default_rng(0))
+    assert errors.shape == (4, 3)
+    assert np.isnan(errors[:, 0]).all() and (errors[:, 1] == 0).all()
+    assert np.isfinite(errors[:, 2]).all()
+
+
+def test_difference_of_two_laplace_errors():
+    """The pair-difference density used in the Notes integrates to 1, variance 4b^2, E|z| = 3b/2."""
+    b = 0.7
+
+    def density(z):
+        return (1 + abs(z) / b) * np.exp(-abs(z) / b) / (4 * b)
+
+    # scipy.integrate.quad over the real line; the variance of x1 - x2 is 2 x 2b^2.
+    assert integrate.quad(density, -np.inf, np.inf)[0] == pytest.approx(1.0, rel=1e-8)
+    assert integrate.quad(lambda z: z * z * density(z), -np.inf, np.inf)[0] == pytest.approx(
+        4 * b**2, rel=1e-8)
+    mean_abs = integrate.quad(lambda z: abs(z) * density(z), -np.inf, np.inf)[0]
+    assert mean_abs == pytest.approx(REFERENCE["laplace"]["mean_absolute_difference_per_scale"]
+                                     * b, rel=1e-8)
+
+
+# --------------------------------------------------------------------------- Monte Carlo
+
+def test_monte_carlo_matches_the_analytic_sum_of_variances(demo_sigma):
+    """With independent record errors, the MC sd of the annual sum equals sqrt(sum sigma^2)."""
+    sigma, _ = demo_sigma
+    index = demo.site_year(seed=0)[0].index
+    sums = monte_carlo_sums(sigma, index, 30, draws=4000, seed=3)
+    # Assumption of the method: independent errors, so Var(sum) = sum of variances.
+    analytic = np.sqrt(np.nansum(sigma**2)) * 1800 * 12.011e-6
+    assert sums.loc[2021, "analytic_sd"] == pytest.approx(analytic, rel=1e-12)
+    # 4000 draws: s.e. of a standard deviation ~ 1/sqrt(2 x 4000) = 1.1 %; 5 % is 4.5 s.e.
+    assert sums.loc[2021, "random_sd"] == pytest.approx(analytic, rel=0.05)
+    # The sum of 17 520 independent errors is close to normal: 95 % interval ~ ±1.96 sd.
+    width = sums.loc[2021, "random_percentile_97_5"] - sums.loc[2021, "random_percentile_2_5"]
+    assert width == pytest.approx(2 * 1.96 * analytic, rel=0.08)
+    assert sums.loc[2021, "records"] == 17520 and sums.loc[2021, "draws"] == 4000
+
+
+def test_monte_carlo_hourly_leap_year_and_two_years():
+    """Hourly records over a leap and a common year: one row per year, sd per year."""
+    index = pd.date_range("2024-01-01", "2025-12-31 23:00", freq="60min")
+    sigma = np.full(len(index), 1.5)
+    sums = monte_carlo_sums(sigma, index, 60, draws=2000, seed=1)
+    assert list(sums.index) == [2024, 2025]
+    # Gregorian calendar (common practice): 366 x 24 and 365 x 24 hourly records.
+    assert list(sums["records"]) == [8784, 8760]
+    per_record = 3600 * 12.011e-6
+    for year, n in ((2024, 8784), (2025, 8760)):
+        expected = 1.5 * np.sqrt(n) * per_record
+        assert sums.loc[year, "analytic_sd"] == pytest.approx(expected, rel=1e-12)
+        # 2000 draws: s.e. 1.6 %; 6 % is 3.8 s.e.
+        assert sums.loc[year, "random_sd"] == pytest.approx(expected, rel=0.06)
+
+
+def test_monte_carlo_is_deterministic_and_nan_aware():
+    """Same seed, same numbers; another seed, other numbers; a NaN sigma makes its year NaN."""
+    index = pd.date_range("2021-12-30", periods=4 * 48, freq="30min")
+    sigma = np.linspace(0.5, 2.0, len(index))
+    first = monte_carlo_sums(sigma, index, 30, draws=50, seed=7)
+    pd.testing.assert_frame_equal(first, monte_carlo_sums(sigma, index, 30, draws=50, seed=7))
+    assert not first.equals(monte_carlo_sums(sigma, index, 30, draws=50, seed=8))
+    sigma[-1] = np.nan
+    gap = monte_carlo_sums(sigma, index, 30, draws=50, seed=7)
+    assert np.isfinite(gap.loc[2021, "random_sd"]) and np.isnan(gap.loc[2022, "random_sd"])
+    assert gap.loc[2021, "random_sd"] == first.loc[2021, "random_sd"]
+
+
+def test_monte_carlo_rejects_bad_arguments():
+    """A wrong interval or too few draws is a clear error."""
+    index = pd.date_range("2021-01-01", periods=10, freq="30min")
+    with pytest.raises(SpacingError, match="interval_minutes = 7"):
+        monte_carlo_sums(np.ones(10), index, 7)
+    with pytest.raises(ValueError, match="draws = 1"):
+        monte_carlo_sums(np.ones(10), index, 30, draws=1)
+    with pytest.raises(ValueError, match="one stamp per sigma"):
+        monte_carlo_sums(np.ones(9), index, 30)
+
+
+# --------------------------------------------------------------------------- paired records
+
+def test_paired_estimator_recovers_a_planted_linear_sigma():
+    """Known truth: sigma = 0.6 + 0.12|NEE| (uptake), 0.4 + 0.2|NEE| (release) is recovered."""
+    index, nee, rg, tair, vpd = _known_truth_record()
+    model = random_error_model(paired_differences(index, nee, rg, tair, vpd))
+    assert list(model.coefficients["source"]) == ["fitted", "fitted"]
+    fluxes = np.array([-15.0, -8.0, -3.0, 1.0, 3.0, 5.0])
+    # Eight seeds gave errors of at most 15 %: binning on the noisy pair mean flattens
+    # the line a little (regression dilution), and true fluxes change a little in 24 h.
+    np.testing.assert_allclose(model.predict(fluxes), _planted_sigma(fluxes), rtol=0.2)
+    assert (model.coefficients["slope"] > 0).all()
+
+
+def test_similarity_criteria_keep_out_dissimilar_days():
+    """Without the Rg criterion, cloudy/clear pairs inflate sigma; with it, they are excluded."""
+    index, nee, rg, tair, vpd = _known_truth_record()
+    pairs = paired_differences(index, nee, rg, tair, vpd)
+    lag = 48
+    first = index.get_indexer(pairs.index)
+    # Richardson et al. (2006) (m), with Rg for PPFD: |ΔRg| < 35 W m-2, |ΔTair| < 3 °C.
+    assert (np.abs(rg[first] - rg[first + lag]) < 35).all()
+    assert (np.abs(tair[first] - tair[first + lag]) < 3).all()
+    assert np.isfinite(pairs[["first", "second"]].to_numpy()).all()
+    loose = random_error_model(paired_differences(index, nee, rg, tair, vpd,
+                                                  rg_tolerance=np.inf))
+    assert loose.predict([-8.0])[0] > 1.3 * _planted_sigma([-8.0])[0]
+
+
+def test_paired_differences_are_one_day_apart_in_hourly_records():
+    """Hourly records pair with the record 24 stamps later; the difference and mean are exact."""
+    index = pd.date_range("2022-06-01", periods=72, freq="60min")
+    nee = np.arange(72.0)
+    same = np.zeros(72)
+    pairs = paired_differences(index, nee, same, same, same)
+    assert len(pairs) == 48
+    assert (pairs["difference"] == -24.0).all()
+    assert (pd.DatetimeIndex(pairs.index) == index[:48]).all()
+    np.testing.assert_array_equal(pairs["mean"], nee[:48] + 12.0)
+
+
+def test_paired_differences_rejects_irregular_time():
+    """An irregular time axis is a SpacingError naming the row."""
+    index = pd.DatetimeIndex(["2022-01-01 00:00", "2022-01-01 00:30", "2022-01-01 01:30"])
+    with pytest.raises(SpacingError, match="row 2"):
+        paired_differences(index, np.ones(3), np.ones(3), np.ones(3), np.ones(3))
+
+
+def test_too_few_pairs_is_insufficient_data():
+    """Fewer pairs than one bin needs is an InsufficientDataError; one class borrows the other."""
+    pairs = pd.DataFrame({"difference": np.ones(10), "mean": np.ones(10)})
+    with pytest.raises(InsufficientDataError, match="30 of one flux class"):
+        random_error_model(pairs)
+    rng = np.random.default_rng(5)
+    release = pd.DataFrame({"difference": rng.laplace(0, 1, 400), "mean": rng.uniform(0, 8, 400)})
+    model = random_error_model(release)
+    assert model.coefficients.loc["uptake", "source"] == "from release"
+    assert model.predict([-3.0])[0] == model.predict([3.0])[0]
+    with pytest.raises(MissingColumnError, match="difference"):
+        random_error_model(pd.DataFrame({"mean": [1.0]}))
+
+
+def test_record_random_error_rules():
+    """Measured: the model; filled: max(model, fill spread) if enough records; unfilled: NaN."""
+    rng = np.random.default_rng(2)
+    pairs = pd.DataFrame({"difference": rng.laplace(0, 1, 2000),
+                          "mean": np.r_[rng.uniform(-10, 0, 1000), rng.uniform(0, 10, 1000)]})
+    model = random_error_model(pairs)
+    nee = np.array([-5.0, -5.0, -5.0, 2.0, np.nan])
+    quality = np.array([0, 1, 3, 2, -1])
+    spread = np.array([np.nan, 9.0, 9.0, 0.01, np.nan])
+    count = np.array([0, 10, 3, 20, 0])
+    sigma = record_random_error(model, nee, quality, spread, count)
+    base = model.predict(nee)
+    assert sigma[0] == base[0]            # measured
+    assert sigma[1] == 9.0                # filled from 10 records with a wide spread
+    assert sigma[2] == base[2]            # only 3 records averaged: spread not used
+    assert sigma[3] == base[3]            # spread smaller than the model
+    assert np.isnan(sigma[4])             # unfilled
+
+
+def test_demo_random_error_near_the_planted_noise(demo_sigma, demo_result):
+    """Known truth: the demo plants Laplace noise of s.d. 0.5 + 0.15|NEE| (fluxpart.demo)."""
+    sigma, model = demo_sigma
+    fluxes = np.array([-8.0, -3.0, 1.0, 4.0])
+    # Day-to-day changes of the true flux widen the pair differences (Hollinger &
+    # Richardson 2005): sigma is an upper estimate; 35 % covers it on this record.
+    np.testing.assert_allclose(model.predict(fluxes), 0.5 + 0.15 * np.abs(fluxes), rtol=0.35)
+    quality = demo_result[0].timeseries["nee_fill_quality"].to_numpy()
+    assert np.isfinite(sigma[quality >= 0]).all() and (sigma[quality >= 0] > 0).all()
+
+
+# --------------------------------------------------------------------------- budget
+
+def test_uncertainty_budget_combines_parts_by_root_sum_of_squares():
+    """Parts: random 3, u* half-range 4 -> total 5 for NEE; partitioning half |day - night|."""
+    annual = pd.DataFrame({"nee": [-200.0], "gpp_nighttime": [1000.0], "gpp_daytime": [1010.0],
+                           "reco_nighttime": [800.0], "reco_daytime": [780.0],
+                           "gpp_method_difference": [10.0], "reco_method_difference": [-20.0],
+                           "nee_ustar_spread": [8.0], "gpp_nighttime_ustar_spread": [24.0],
+                           "reco_nighttime_ustar_spread": [6.0],
+                           "gpp_daytime_ustar_spread": [0.0], "reco_daytime_ustar_spread": [0.0]},
+                          index=pd.Index([2021], name="year"))
+    random = pd.DataFrame({"random_sd": [3.0], "random_percentile_2_5": [-6.0],
+                           "random_percentile_97_5": [6.0], "analytic_sd": [3.0]},
+                          index=pd.Index([2021], name="year"))
+    out = uncertainty_budget(annual, random)
+    row = out.loc[2021]
+    assert row["nee_uncertainty_random"] == 3.0 and row["nee_uncertainty_ustar"] == 4.0
+    assert row["nee_uncertainty_total"] == pytest.approx(5.0)
+    assert row["gpp_uncertainty_partitioning"] == 5.0
+    assert row["reco_uncertainty_partitioning"] == 10.0
+    # Nighttime GPP = Reco - NEE carries NEE's random error: sqrt(12^2 + 5^2 + 3^2).
+    assert row["gpp_nighttime_uncertainty_total"] == pytest.approx(np.sqrt(144 + 25 + 9))
+    assert row["reco_nighttime_uncertainty_total"] == pytest.approx(np.sqrt(9 + 100))
+    assert row["gpp_daytime_uncertainty_total"] == pytest.approx(5.0)
+    assert row["uncertainty_parts_missing"] == ""
+    assert set(out.columns) <= set(ANNUAL_COLUMNS)
+
+
+def test_uncertainty_budget_without_ustar_scenarios_names_the_missing_part():
+    """Without u* scenarios the u* part is NaN, left out of the total and named."""
+    annual = pd.DataFrame({"nee": [-200.0], "gpp_nighttime": [1000.0], "gpp_daytime": [990.0],
+                           "reco_nighttime": [800.0], "reco_daytime": [790.0]},
+                          index=pd.Index([2022], name="year"))
+    random = pd.DataFrame({"random_sd": [3.0], "random_percentile_2_5": [-6.0],
+                           "random_percentile_97_5": [6.0], "analytic_sd": [3.0]},
+                          index=pd.Index([2022], name="year"))
+    row = uncertainty_budget(annual, random).loc[2022]
+    assert np.isnan(row["nee_uncertainty_ustar"])
+    assert row["nee_uncertainty_total"] == 3.0
+    assert row["gpp_uncertainty_partitioning"] == 5.0       # from the two sums
+    assert row["uncertainty_parts_missing"] == "ustar"
+
+
+def test_uncertainty_budget_on_the_demo(demo_result, demo_sigma):
+    """Wiring: the demo's annual table gives finite parts, totals at least their largest part."""
+    result, _ = demo_result
+    sigma, _ = demo_sigma
+    random = monte_carlo_sums(sigma, result.timeseries.index, 30, draws=500, seed=0)
+    out = uncertainty_budget(result.annual, random)
+    row = out.loc[2021]
+    for column in ANNUAL_COLUMNS:
+        if column in out.columns and column != "uncertainty_parts_missing":
+            assert np.isfinite(row[column]), column
+    assert row["nee_uncertainty_total"] >= max(row["nee_uncertainty_random"],
+                                               row["nee_uncertainty_ustar"])
+    assert row["nee_uncertainty_ustar"] == pytest.approx(
+        result.annual.loc[2021, "nee_ustar_spread"] / 2)
+    with pytest.raises(MissingColumnError, match="random_sd"):
+        uncertainty_budget(result.annual, random.drop(columns="random_sd"))
+
+
+# --------------------------------------------------------------------------- units
+
+def test_tonnes_co2_per_hectare_against_the_handbook_value():
+    """1 g C m-2 = 44.009/12.011 x 0.01 = 0.036641 t CO2 ha-1 (IUPAC atomic weights, SI)."""
+    values = REFERENCE["carbon_accounting"]
+    annual = pd.DataFrame({"nee": [-1.0, 250.0], "nee_uncertainty_total": [1.0, 10.0],
+                           "nee_uncertainty_random": [0.5, 2.0]},
+                          index=pd.Index([2021, 2022], name="year"))
+    out = carbon_accounting_units(annual)
+    # NEE = -1 g C m-2 is a net uptake of one gram: positive.
+    assert out.loc[2021, "net_uptake_t_co2_per_ha"] == pytest.approx(
+        values["t_co2_per_ha_per_g_c_per_m2"], rel=values["relative_tolerance"])
+    assert out.loc[2022, "net_uptake_t_co2_per_ha"] < 0          # a net source
+    assert out.loc[2022, "net_uptake_t_co2_per_ha_uncertainty"] == pytest.approx(
+        10 * values["t_co2_per_ha_per_g_c_per_m2"], rel=values["relative_tolerance"])
+    assert out.loc[2021, "net_uptake_t_co2_per_ha_uncertainty_random"] == pytest.approx(
+        0.5 * values["co2_per_carbon"] * 0.01, rel=1e-6)
+    with pytest.raises(MissingColumnError, match="nee"):
+        carbon_accounting_units(annual.drop(columns="nee"))
