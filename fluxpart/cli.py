@@ -88,10 +88,9 @@ def _command_run(args) -> int:
 
 
 def _command_check(args) -> int:
+    from .config import Config
     from .coverage import coverage_table, format_check
     from .io import read_site_config
-
-    from .config import Config
     from .pipeline import screening_summary
 
     site_config = read_site_config(args.config)

@@ -120,6 +120,14 @@ class Config:
     daytime_beta0_max : float
         Upper bound of the light-saturated assimilation beta0 [µmol m-2 s-1]; 250,
         Lasslop et al. (2010) (m). Windows reaching it are kept and flagged.
+    random_error_draws : int
+        Monte Carlo realisations of the random error of NEE summed per year; 500,
+        our choice (the standard deviation of the sum is then known to about 3 %).
+    random_error_rg_tolerance, random_error_tair_tolerance, random_error_vpd_tolerance : float
+        Records 24 h apart form a pair for the random-error estimate where Rg, Tair
+        and VPD differ by less than these [W m-2], [°C], [hPa]; 35 W m-2 (about the
+        75 µmol m-2 s-1 of PPFD of Richardson et al. 2006 (m)), 3 °C (Richardson et al.
+        2006 (m)) and 5 hPa (our choice, standing in for their wind-speed criterion).
     agreement_margin : float
         Largest relative difference between daytime and nighttime annual GPP (and
         Reco), ``|day - night| / mean``, before the result warns that the methods
@@ -162,6 +170,10 @@ class Config:
     daytime_min_points: int = 10
     daytime_k_min_points: int = 5
     daytime_beta0_max: float = 250.0
+    random_error_draws: int = 500
+    random_error_rg_tolerance: float = 35.0
+    random_error_tair_tolerance: float = 3.0
+    random_error_vpd_tolerance: float = 5.0
     agreement_margin: float = 0.15
 
     def __post_init__(self):
@@ -233,10 +245,12 @@ _POSITIVE = ("night_rg_threshold", "rg_tolerance", "tair_tolerance", "vpd_tolera
              "e0_max_relative_error", "rref_window_days", "despike_z", "despike_block_days",
              "gapfill_max_window_days", "daytime_window_days", "daytime_window_step_days",
              "agreement_margin", "daytime_beta0_max", "ustar_plateau_share",
-             "ustar_correlation_limit")
+             "ustar_correlation_limit", "random_error_rg_tolerance",
+             "random_error_tair_tolerance", "random_error_vpd_tolerance")
 _NON_NEGATIVE = ("ustar_threshold", "ustar_min_threshold", "rg_margin", "rg_relative_margin")
 _COUNTS = ("e0_min_points", "e0_best_windows", "rref_min_points", "daytime_min_points",
-           "daytime_k_min_points", "ustar_temperature_classes", "ustar_classes")
+           "daytime_k_min_points", "ustar_temperature_classes", "ustar_classes",
+           "random_error_draws")
 _PERCENTILES = (5, 16, 50, 84, 95)
 
 

@@ -35,7 +35,7 @@ CAUTION = (
     "and by accredited verification."
 )
 
-_TABLES = ("timeseries", "daily", "monthly", "annual", "ustar")
+_TABLES = ("timeseries", "daily", "monthly", "annual", "ustar", "audit")
 _LIBRARIES = ("fluxpart", "numpy", "pandas", "scipy", "statsmodels", "pyarrow")
 
 
@@ -114,7 +114,7 @@ def write_result(result, directory) -> Path:
 
 
 def _unit_table(name: str) -> str:
-    return name if name in ("timeseries", "daily", "monthly", "annual") else "parameters"
+    return name if name in ("timeseries", "daily", "monthly", "annual", "audit") else "parameters"
 
 
 def read_manifest(directory) -> dict:
@@ -154,5 +154,6 @@ def load(directory):
     return Result(site=Site(**manifest["site"]), config=config,
                   timeseries=tables["timeseries"], daily=tables["daily"],
                   monthly=tables["monthly"], annual=tables["annual"], ustar=tables["ustar"],
+                  audit=tables["audit"],
                   parameters=parameters, screening_counts=tables["screening"]["records"],
                   warnings=tuple(manifest["warnings"]), provenance=manifest["provenance"])

@@ -8,7 +8,10 @@ Stages (each a pure function of its own module):
 4. gap filling of the drivers, then of NEE after the u* filter (:mod:`fluxpart.gapfill`);
 5. nighttime and daytime partitioning (:mod:`fluxpart.partition`);
 6. steps 4–5 again for each u* scenario threshold (the threshold's share of uncertainty);
-7. daily, monthly and annual budgets with coverage (:mod:`fluxpart.budget`).
+7. daily, monthly and annual budgets with coverage (:mod:`fluxpart.budget`), the
+   daytime/nighttime agreement (:mod:`fluxpart.agreement`), the random error of NEE
+   and the uncertainty budget (:mod:`fluxpart.uncertainty`) and the audit trail
+   (:mod:`fluxpart.audit`).
 
 Nothing here computes science; it only passes :class:`~fluxpart.config.Config`
 settings to the stage functions and assembles their outputs.
@@ -23,9 +26,15 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from . import agreement, budget, gapfill, screening, solar, ustar
+from . import agreement, audit, budget, gapfill, screening, solar, uncertainty, ustar
 from .config import Config
-from .errors import ConfigError, FluxpartError, MissingColumnError, SpacingError
+from .errors import (
+    ConfigError,
+    FluxpartError,
+    InsufficientDataError,
+    MissingColumnError,
+    SpacingError,
+)
 from .partition import daytime, nighttime
 from .site import Site
 from .variables import REQUIRED, VARIABLES
@@ -58,6 +67,9 @@ class Result:
         and carries ``ustar_threshold`` [m s-1] and the u* scenario spread.
     ustar : pandas.DataFrame
         u* thresholds per year and season with their bootstrap percentiles [m s-1].
+    audit : pandas.DataFrame
+        Per year: records present, rejected by each screening reason, measured and
+        filled by quality class, and the share of the |NEE| sum measured vs filled.
     parameters : dict of str to pandas.DataFrame
         Fitted parameter tables: ``nighttime_e0``, ``nighttime_e0_annual``,
         ``nighttime_rref``, ``daytime``.
@@ -77,6 +89,7 @@ class Result:
     monthly: pd.DataFrame
     annual: pd.DataFrame
     ustar: pd.DataFrame
+    audit: pd.DataFrame
     parameters: dict
     screening_counts: pd.Series
     warnings: tuple = ()
@@ -351,6 +364,24 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     step("budgets")
     annual = annual.assign(ustar_threshold=central.reindex(annual.index).to_numpy())
     annual = _scenario_spread(annual, outcomes, frame.index, interval)
+
+    parameters = {}
+    try:
+        sigma, error_model = uncertainty.timeseries_random_error(
+            timeseries, rg_tolerance=config.random_error_rg_tolerance,
+            tair_tolerance=config.random_error_tair_tolerance,
+            vpd_tolerance=config.random_error_vpd_tolerance)
+        parameters["random_error_model"] = error_model.table()
+        parameters["random_error_bins"] = error_model.bins
+    except InsufficientDataError as error:
+        sigma = np.full(len(timeseries), np.nan)
+        warnings.append(f"random error of NEE not estimated: {error}")
+    timeseries = timeseries.assign(nee_random_error=sigma)
+    random = uncertainty.monte_carlo_sums(sigma, timeseries.index, interval,
+                                          draws=config.random_error_draws, seed=config.seed)
+    annual = annual.join(uncertainty.uncertainty_budget(annual, random))
+    annual = annual.join(uncertainty.carbon_accounting_units(annual))
+    audit_table = audit.audit_trail(timeseries)
     counts = screens.counts.copy()
     counts[screening.REASON_CODES[_REASON_LOW_USTAR]] = int((reason == _REASON_LOW_USTAR).sum())
     counts[screening.REASON_CODES[0]] = int((reason == 0).sum())
@@ -362,9 +393,10 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     return Result(
         site=site, config=config, timeseries=timeseries, daily=daily,
         monthly=monthly, annual=annual, ustar=ustar_table,
+        audit=audit_table,
         parameters={"nighttime_e0": night.e0_windows, "nighttime_e0_annual": night.e0_annual,
                     "nighttime_rref": night.rref_windows, "daytime": day.parameters,
-                    "ustar_bootstrap": ustar_draws},
+                    "ustar_bootstrap": ustar_draws, **parameters},
         screening_counts=counts, warnings=tuple(warnings),
         provenance={**(provenance or {}), "screening": screens.thresholds})
 
@@ -405,7 +437,7 @@ def process_site_config(path, config: Config | None = None, *, progress=None) ->
     config = Config.from_toml(path) if config is None else config
     provenance = {
         "site_config": {"path": str(Path(path).resolve()), "sha256": file_sha256(path)},
-        "input": {"path": str(site_config.input_path), "sha256": file_sha256(
+        "input": {"path": str(Path(site_config.input_path).resolve()), "sha256": file_sha256(
             site_config.input_path)},
     }
     return process(frame, site_config.site, config, provenance=provenance, progress=progress)

@@ -10,6 +10,8 @@ from __future__ import annotations
 
 import re
 
+from .audit import AUDIT_COLUMNS
+from .uncertainty import ANNUAL_COLUMNS, MODEL_COLUMNS
 from .variables import VARIABLES
 
 __all__ = ["describe", "units_for_table"]
@@ -115,9 +117,11 @@ def describe(table: str, column: str) -> tuple[str, str]:
             return variable.unit, f"input: {variable.description}"
         exact, patterns = _TIMESERIES, _PATTERNS
     elif table in ("daily", "monthly", "annual"):
-        exact, patterns = _BUDGET, _BUDGET_PATTERNS
+        exact, patterns = {**_BUDGET, **ANNUAL_COLUMNS}, _BUDGET_PATTERNS
+    elif table == "audit":
+        exact, patterns = {"year": _BUDGET["year"], **AUDIT_COLUMNS}, []
     else:
-        return _PARAMETER_UNITS.get(column, ("", ""))
+        return {**MODEL_COLUMNS, **_PARAMETER_UNITS}.get(column, ("", ""))
     if column in exact:
         return exact[column]
     for pattern, rule in patterns:

@@ -206,3 +206,23 @@ def test_demo_without_ustar_loss_gives_no_artefact():
                                                    Config(ustar_bootstrap_draws=0))
     annual = table[table["period"] == "year"].iloc[0]
     assert np.isnan(annual["threshold"]) or annual["threshold"] <= 0.15
+
+
+def test_a_different_seed_changes_only_the_random_draw_columns(demo_run):
+    """Another seed changes only Monte Carlo and bootstrap-derived columns (issue 6).
+
+    The seed drives the u* bootstrap (hence the scenario thresholds and their sums)
+    and the Monte Carlo of the random error; the central threshold, the filled series
+    and the central budget come from the data alone.
+    """
+    frame, _, result = demo_run
+    other = process(frame, demo.site(), Config(seed=7))
+    pd.testing.assert_frame_equal(other.timeseries, result.timeseries)
+    changed = [c for c in result.annual.columns
+               if not result.annual[c].equals(other.annual[c])]
+    assert changed, "a new seed must change the Monte Carlo columns"
+    random_draw = ("_ustar_p", "_ustar_spread", "_uncertainty", "net_uptake_t_co2_per_ha_")
+    assert all(any(part in c for part in random_draw) for c in changed), changed
+    for column in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime",
+                   "ustar_threshold", "net_uptake_t_co2_per_ha"):
+        assert column not in changed
