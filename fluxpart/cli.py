@@ -18,9 +18,44 @@ __all__ = ["main"]
 
 
 def _format_annual(annual) -> str:
+    """The annual budget, its uncertainty budget and the carbon-accounting units, as text."""
     columns = [c for c in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime",
-                           "reco_daytime", "ustar_threshold", "complete") if c in annual.columns]
-    return annual[columns].to_string(float_format=lambda v: f"{v:9.1f}")
+                           "reco_daytime", "share_measured", "complete") if c in annual.columns]
+    lines = ["Annual budget [g C m-2; NEE < 0 is net uptake; share_measured of records]:",
+             annual[columns].to_string(float_format=lambda v: f"{v:9.2f}")]
+    rows = []
+    for year, row in annual.iterrows():
+        for flux, random, partitioning in (
+                ("nee", "nee_uncertainty_random", None),
+                ("gpp_nighttime", "gpp_nighttime_uncertainty_random",
+                 "gpp_uncertainty_partitioning"),
+                ("reco_nighttime", None, "reco_uncertainty_partitioning"),
+                ("gpp_daytime", None, "gpp_uncertainty_partitioning"),
+                ("reco_daytime", None, "reco_uncertainty_partitioning")):
+            total = f"{flux}_uncertainty_total"
+            if total not in annual.columns:
+                continue
+            rows.append({"year": year, "flux": flux,
+                         "random": row.get(random, float("nan")) if random else float("nan"),
+                         "ustar": row.get(f"{flux}_uncertainty_ustar", float("nan")),
+                         "partitioning": row.get(partitioning, float("nan"))
+                         if partitioning else float("nan"),
+                         "total": row[total]})
+    if rows:
+        import pandas as pd
+
+        table = pd.DataFrame(rows).set_index(["year", "flux"])
+        lines += ["", "Uncertainty budget [g C m-2]: random (Monte Carlo s.d.), u* threshold "
+                  "and partitioning method (half-ranges), total (root sum of squares); "
+                  "systematic errors not included:",
+                  table.to_string(float_format=lambda v: f"{v:9.1f}", na_rep="        -")]
+    if "net_uptake_t_co2_per_ha" in annual.columns:
+        lines += ["", "Net uptake [t CO2 ha-1 per year; positive = uptake]:"]
+        for year, row in annual.iterrows():
+            lines.append(f"  {year}: {row['net_uptake_t_co2_per_ha']:.2f} ± "
+                         f"{row['net_uptake_t_co2_per_ha_uncertainty']:.2f} "
+                         f"(u* threshold {row['ustar_threshold']:.3f} m s-1)")
+    return "\n".join(lines)
 
 
 def _progress_bar(config, quiet):
@@ -51,8 +86,10 @@ def _command_demo(args) -> int:
     result.write(out)
     print(f"fluxpart demo: {site.name} (a fictional site), {frame.index[0]:%Y-%m-%d} to "
           f"{frame.index[-1]:%Y-%m-%d}, {len(frame)} records")
-    print("\nAnnual budget [g C m-2; NEE < 0 is net uptake]:")
+    print()
     print(_format_annual(result.annual))
+    for warning in result.warnings:
+        print(f"warning: {warning}")
     print("\nError against the demo's known truth [g C m-2]:")
     print(demo.compare_with_truth(result.annual, truth).to_string(
         formatters={"relative_error": "{:+.1%}".format}, float_format=lambda v: f"{v:9.1f}"))
@@ -80,8 +117,10 @@ def _command_run(args) -> int:
         Path(args.config).stem + "-output")
     result.write(out)
     print(f"fluxpart run: {result.site.name}, {len(result.timeseries)} records")
-    print("\nAnnual budget [g C m-2; NEE < 0 is net uptake]:")
+    print()
     print(_format_annual(result.annual))
+    for warning in result.warnings:
+        print(f"warning: {warning}")
     print(f"\nWrote {out}/ (Parquet tables and manifest.json)")
     print(f"Caution: {CAUTION}")
     return 0
@@ -171,3 +210,6 @@ def main(argv=None) -> int:
     except FluxpartError as error:
         print(f"error: {error}", file=sys.stderr)
         return 2
+    except BrokenPipeError:          # output piped into e.g. `head`, which closed early
+        sys.stderr.close()
+        return 0

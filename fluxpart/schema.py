@@ -17,6 +17,7 @@ from .variables import VARIABLES
 __all__ = ["describe", "units_for_table"]
 
 FLUX = "µmol m-2 s-1"
+_NAMES = {"gpp": "GPP", "reco": "Reco"}
 CARBON = "g C m-2"
 
 _TIMESERIES = {
@@ -84,11 +85,11 @@ _BUDGET_PATTERNS = [
                 f"{m[2][1:]}")),
     (r"(nee|gpp_nighttime|reco_nighttime|gpp_daytime|reco_daytime)_ustar_spread",
      lambda m: (CARBON, f"{m[1]}: max - min over the u* threshold scenarios")),
-    (r"(gpp|reco)_(nighttime|daytime)", lambda m: (CARBON, f"{m[1].upper()} summed over the "
+    (r"(gpp|reco)_(nighttime|daytime)", lambda m: (CARBON, f"{_NAMES[m[1]]} summed over the "
                                                    f"period, {m[2]} method")),
-    (r"(gpp|reco)_method_difference", lambda m: (CARBON, f"{m[1].upper()} daytime minus "
+    (r"(gpp|reco)_method_difference", lambda m: (CARBON, f"{_NAMES[m[1]]} daytime minus "
                                                  "nighttime")),
-    (r"(gpp|reco)_relative_difference", lambda m: ("1", f"{m[1].upper()} (daytime - nighttime) "
+    (r"(gpp|reco)_relative_difference", lambda m: ("1", f"{_NAMES[m[1]]} (daytime - nighttime) "
                                                    "/ mean of both")),
     (r"methods_agree", lambda m: ("1", "daytime and nighttime GPP and Reco within the "
                                   "agreement margin")),
