@@ -12,6 +12,7 @@ __all__ = [
     "ImplausibleValueError",
     "InputFileError",
     "InsufficientDataError",
+    "LengthMismatchError",
     "MissingColumnError",
     "NonMonotonicTimestampError",
     "SpacingError",
@@ -54,6 +55,10 @@ class SpacingError(FluxpartError):
 
 class UnitError(FluxpartError):
     """A declared unit is unknown for its variable."""
+
+
+class LengthMismatchError(FluxpartError):
+    """An array passed beside a time axis does not have one value per record."""
 
 
 class ImplausibleValueError(FluxpartError):

@@ -78,6 +78,7 @@ from .errors import (
     DuplicateTimestampError,
     FluxpartError,
     ImplausibleValueError,
+    LengthMismatchError,
     MissingColumnError,
     NonMonotonicTimestampError,
     SpacingError,
@@ -188,7 +189,7 @@ def _as_values(values, name: str, index) -> np.ndarray:
     if array.ndim != 1:
         raise FluxpartError(f"{name}: expected a 1-D series, found shape {array.shape}")
     if array.size != len(index):
-        raise FluxpartError(f"{name}: {array.size} values for {len(index)} timestamps; give one "
+        raise LengthMismatchError(f"{name}: {array.size} values for {len(index)} timestamps; give one "
                             "value per record of the index")
     infinite = np.isinf(array)
     if infinite.any():

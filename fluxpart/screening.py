@@ -28,7 +28,13 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from .errors import ConfigError, FluxpartError, MissingColumnError, TimestampError
+from .errors import (
+    ConfigError,
+    FluxpartError,
+    LengthMismatchError,
+    MissingColumnError,
+    TimestampError,
+)
 from .variables import VARIABLES
 
 __all__ = [
@@ -537,7 +543,7 @@ def _check_lengths(index, **arrays) -> None:
     expected = len(index) if index is not None else len(next(iter(arrays.values())))
     for name, array in arrays.items():
         if len(array) != expected:
-            raise FluxpartError(f"{name} has {len(array)} values but the record has "
+            raise LengthMismatchError(f"{name} has {len(array)} values but the record has "
                                 f"{expected}; give one value per interval")
 
 

@@ -20,7 +20,7 @@ import numpy as np
 import pandas as pd
 
 from .constants import SECONDS_PER_DAY, SOLAR_CONSTANT
-from .errors import ConfigError, FluxpartError, SpacingError, TimestampError
+from .errors import ConfigError, LengthMismatchError, SpacingError, TimestampError
 
 __all__ = [
     "interval_midpoint_elevation",
@@ -419,7 +419,7 @@ def night_mask(rg, potential, rg_threshold=10.0, *, potential_epsilon=1e-6) -> n
     rg = np.asarray(rg, dtype=float)
     potential = np.asarray(potential, dtype=float)
     if rg.shape != potential.shape:
-        raise FluxpartError(f"night_mask: rg has shape {rg.shape} but potential has shape "
+        raise LengthMismatchError(f"night_mask: rg has shape {rg.shape} but potential has shape "
                             f"{potential.shape}; pass the same records")
     by_potential = potential <= potential_epsilon
     with np.errstate(invalid="ignore"):

@@ -47,7 +47,13 @@ import numpy as np
 import pandas as pd
 
 from .constants import CARBON_MOLAR_MASS, CO2_MOLAR_MASS
-from .errors import FluxpartError, InsufficientDataError, MissingColumnError, SpacingError
+from .errors import (
+    FluxpartError,
+    InsufficientDataError,
+    LengthMismatchError,
+    MissingColumnError,
+    SpacingError,
+)
 
 __all__ = [
     "ANNUAL_COLUMNS",
@@ -228,7 +234,7 @@ def _values(values, name: str, n: int) -> np.ndarray:
     except (TypeError, ValueError):
         raise FluxpartError(f"uncertainty: {name} is not numeric") from None
     if array.shape != (n,):
-        raise FluxpartError(f"uncertainty: {name} has {array.size} values; expected one per "
+        raise LengthMismatchError(f"uncertainty: {name} has {array.size} values; expected one per "
                             f"record ({n})")
     return array
 

@@ -34,7 +34,7 @@ import numpy as np
 import pandas as pd
 import statsmodels.api as sm
 
-from .errors import ConfigError, FluxpartError, TimestampError
+from .errors import ConfigError, FluxpartError, LengthMismatchError, TimestampError
 
 __all__ = [
     "DETECTORS",
@@ -659,7 +659,7 @@ def _night_data(nee, ustar, tair, is_night, seasons, *, need_tair) -> _NightData
         raise FluxpartError("the moving point test needs the air temperature 'tair' [°C]")
     for name, array in arrays.items():
         if len(array) != len(seasons):
-            raise FluxpartError(f"{name} has {len(array)} values but the record has "
+            raise LengthMismatchError(f"{name} has {len(array)} values but the record has "
                                 f"{len(seasons)}; give one value per interval")
     temperature = arrays.get("tair", np.zeros(len(seasons)))
     usable = (arrays["is_night"] & np.isfinite(arrays["nee"]) & np.isfinite(arrays["ustar"])

@@ -68,6 +68,7 @@ from ..errors import (
     FluxpartError,
     ImplausibleValueError,
     InsufficientDataError,
+    LengthMismatchError,
     NonMonotonicTimestampError,
     TimestampError,
 )
@@ -355,7 +356,7 @@ def _as_series_array(values, name, n) -> np.ndarray:
     except (TypeError, ValueError):
         raise FluxpartError(f"{name}: expected numbers, found values that are not") from None
     if array.shape != (n,):
-        raise FluxpartError(f"{name}: expected one value per record ({n}), found shape "
+        raise LengthMismatchError(f"{name}: expected one value per record ({n}), found shape "
                             f"{array.shape}")
     return array
 
@@ -368,7 +369,7 @@ def _as_bool_array(values, name, n) -> np.ndarray:
         raise ImplausibleValueError(f"{name}: expected booleans without missing values, "
                                     f"found dtype {array.dtype}")
     if array.shape != (n,):
-        raise FluxpartError(f"{name}: expected one value per record ({n}), found shape "
+        raise LengthMismatchError(f"{name}: expected one value per record ({n}), found shape "
                             f"{array.shape}")
     return array
 

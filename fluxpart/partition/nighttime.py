@@ -37,7 +37,13 @@ from ..constants import (
     LLOYD_TAYLOR_T0_KELVIN,
     LLOYD_TAYLOR_TREF_KELVIN,
 )
-from ..errors import ConfigError, FluxpartError, ImplausibleValueError, InsufficientDataError
+from ..errors import (
+    ConfigError,
+    FluxpartError,
+    ImplausibleValueError,
+    InsufficientDataError,
+    LengthMismatchError,
+)
 from ..responses import lloyd_taylor, lloyd_taylor_derivatives
 
 __all__ = [
@@ -131,7 +137,7 @@ def _as_float(name: str, values, length: int) -> np.ndarray:
         raise FluxpartError(f"{name}: expected numbers, found values that are not: {error}") \
             from None
     if array.ndim != 1 or array.shape[0] != length:
-        raise FluxpartError(f"{name}: expected {length} values aligned with the index, "
+        raise LengthMismatchError(f"{name}: expected {length} values aligned with the index, "
                             f"found shape {array.shape}")
     return array
 
@@ -159,7 +165,7 @@ def _as_night(name: str, values, length: int) -> np.ndarray:
         values = values.to_numpy()
     array = np.asarray(values)
     if array.ndim != 1 or array.shape[0] != length:
-        raise FluxpartError(f"{name}: expected {length} values aligned with the index, "
+        raise LengthMismatchError(f"{name}: expected {length} values aligned with the index, "
                             f"found shape {array.shape}")
     if array.dtype == bool:
         return array
