@@ -127,6 +127,11 @@ def _validate(frame: pd.DataFrame) -> int:
     for name in frame.columns:
         if not pd.api.types.is_numeric_dtype(frame[name]):
             raise FluxpartError(f"column {name!r} has dtype {frame[name].dtype}; expected numbers")
+    for name in REQUIRED:
+        if frame[name].isna().all():
+            raise MissingColumnError(f"column {name!r} ({VARIABLES[name].description}) holds no "
+                                     "values at all; every stage needs some measured records "
+                                     "of it (check the column mapping and the missing codes)")
     if len(frame) < 2:
         raise SpacingError("the frame has fewer than two records")
     steps = np.diff(frame.index.to_numpy().astype("datetime64[s]").astype(np.int64))

@@ -172,6 +172,8 @@ def test_bad_frames_are_rejected_with_the_column_or_row_named():
         process(frame.drop(frame.index[3]), demo.site())
     with pytest.raises(SpacingError, match="time zone"):
         process(frame.tz_localize("UTC"), demo.site())
+    with pytest.raises(MissingColumnError, match="'vpd'.*no values"):
+        process(frame.assign(vpd=np.nan), demo.site())
 
 
 def test_too_little_night_data_fails_clearly_unless_a_fallback_is_chosen():
