@@ -35,6 +35,7 @@ from __future__ import annotations
 import glob
 import json
 import logging
+import os
 import re
 import shutil
 import sys
@@ -547,6 +548,7 @@ def _write_failures(outcomes, out: Path) -> pd.DataFrame:
 def _client(scheduler, workers):
     """Return (client, cluster or None) for an address or a new local cluster."""
     try:
+        import dask
         from dask.distributed import Client, LocalCluster
     except ImportError:
         raise ConfigError("fluxpart batch needs Dask: install it with "
@@ -565,9 +567,22 @@ def _client(scheduler, workers):
                               f"{_CONNECT_TIMEOUT_SECONDS} s ({type(error).__name__}: {error}); "
                               "start one with `dask scheduler`, or leave --scheduler out "
                               "for a local cluster") from None
-    cluster = LocalCluster(n_workers=workers or _DEFAULT_WORKERS, threads_per_worker=1,
-                           processes=True, host="127.0.0.1", dashboard_address=None,
-                           silence_logs=logging.ERROR)
+    # Dask starts workers with MALLOC_TRIM_THRESHOLD_ set, which switches off glibc's
+    # adaptive mmap threshold: the pipeline's many mid-sized arrays then cost about a
+    # third more time per site (tests/benchmarks/bench_batch.py). Our own local
+    # workers keep the C library's default; one thread per worker stays. Dask writes
+    # the workers' variables into this process's environment too: put it back.
+    saved = dict(os.environ)
+    try:
+        with dask.config.set({"distributed.nanny.pre-spawn-environ.MALLOC_TRIM_THRESHOLD_":
+                              None}):
+            cluster = LocalCluster(n_workers=workers or _DEFAULT_WORKERS, threads_per_worker=1,
+                                   processes=True, host="127.0.0.1", dashboard_address=None,
+                                   silence_logs=logging.ERROR)
+    finally:
+        for name in set(os.environ) - set(saved):
+            del os.environ[name]
+        os.environ.update({k: v for k, v in saved.items() if os.environ.get(k) != v})
     try:
         return Client(cluster), cluster
     except BaseException:
@@ -615,13 +630,15 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     by its task exactly as ``fluxpart run SITE.toml --out out/<key>`` does, so the
     tables are byte-identical to a single run. ``out/network_annual`` and
     ``out/failures.parquet`` are rewritten on every run and cover the sites of
-    this network file only.
+    this network file only; a site that fails keeps whatever folder an earlier run
+    left, but is left out of the network table. Worker processes are spawned, so a
+    script that calls this function must do so under ``if __name__ == "__main__":``.
     """
     network = read_sites_file(sites_file)
     out = (Path(out) if out is not None else network.out).resolve()
-    out.mkdir(parents=True, exist_ok=True)
     client, cluster = _client(scheduler, workers)
     try:
+        out.mkdir(parents=True, exist_ok=True)
         outcomes = _run_tasks(client, network.sites, out, force, progress)
     finally:
         client.close()

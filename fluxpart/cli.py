@@ -181,10 +181,16 @@ def _parser() -> argparse.ArgumentParser:
     report.add_argument("--quiet", action="store_true", help="no progress output")
     report.set_defaults(handler=_lazy("report", "command_report"))
 
-    batch = commands.add_parser("batch", help="many sites on Dask")
+    batch = commands.add_parser(
+        "batch", help="many sites on Dask",
+        description="Process every site config listed in SITES.toml, one Dask task per site. "
+        "SITES.toml: [batch] sites = [\"a.toml\", \"towers/*.toml\"] (paths or globs relative to "
+        "it) and optionally out = \"network-output\". Inputs travel to the workers as paths, so "
+        "every worker must see the same file system.")
     batch.add_argument("sites", help="SITES.toml listing site configs (paths or globs)")
-    batch.add_argument("--scheduler", help="address of an existing Dask scheduler "
-                       "(default: a local cluster of processes)")
+    batch.add_argument("--scheduler", help="address of an existing Dask scheduler, e.g. "
+                       "tcp://scheduler-host:8786; its workers must share this file system (default: a "
+                       "local cluster of processes on 127.0.0.1)")
     batch.add_argument("--workers", type=int, help="workers of the local cluster")
     batch.add_argument("--out", help="output folder (default: from SITES.toml)")
     batch.add_argument("--force", action="store_true", help="rerun sites already up to date")

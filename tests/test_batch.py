@@ -10,6 +10,7 @@ practice of Arrow readers).
 """
 
 import hashlib
+import io
 import os
 import subprocess
 import sys
@@ -215,6 +216,21 @@ def test_is_up_to_date_checks_hashes_settings_and_versions(towers, tmp_path, mon
     assert batch.is_up_to_date(config, folder)
 
 
+def test_progress_line_counts_done_failed_and_remaining():
+    """The terminal line shows sites ended of total, failed and remaining."""
+    stream = io.StringIO()
+    progress = batch._SiteProgress(3, stream)
+    outcomes = (("a", "written"), ("b", "failed"), ("c", "skipped"))
+    for finished, (key, status) in enumerate(outcomes, start=1):
+        progress(batch.SiteOutcome(key=key, config="", directory="", status=status),
+                 finished, 3)
+    progress.close()
+    lines = stream.getvalue().split("\r")
+    assert "0 failed, 3 remaining" in lines[1] and "0/3" in lines[1]
+    assert "1 failed, 0 remaining" in lines[-1] and "3/3" in lines[-1]
+    assert stream.getvalue().endswith("\n")
+
+
 # --------------------------------------------------------------------------- whole batches
 
 def test_batch_is_byte_identical_to_fluxpart_run(towers, tmp_path, capsys):
@@ -274,9 +290,8 @@ def test_external_scheduler_and_workers(towers, tmp_path):
         for key in ("tower0", "tower1"):
             assert batch.is_up_to_date(configs[key], report.out / key)
     finally:
-        for process in reversed(processes):
+        for process in reversed(processes):           # the workers first, then the scheduler
             process.terminate()
-        for process in reversed(processes):
             try:
                 process.wait(timeout=30)
             except subprocess.TimeoutExpired:
