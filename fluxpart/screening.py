@@ -28,12 +28,12 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from ._validate import as_bool, datetime_index
 from .errors import (
     ConfigError,
     FluxpartError,
     LengthMismatchError,
     MissingColumnError,
-    TimestampError,
 )
 from .variables import VARIABLES
 
@@ -168,9 +168,9 @@ def despike(nee, index, is_night, *, z=4.0, block_days=13, min_values=10,
     measured with eddy covariance technique: algorithms and uncertainty
     estimation. Biogeosciences 3:571–583. doi:10.5194/bg-3-571-2006
     """
-    index = _check_index(index)
+    index = datetime_index(index)
     nee = _as_float(nee, "nee")
-    is_night = _as_bool(is_night, "is_night")
+    is_night = as_bool(is_night, "is_night")
     _check_lengths(index, nee=nee, is_night=is_night)
     _check_positive(z=z, block_days=block_days, min_values=min_values)
 
@@ -314,7 +314,7 @@ def low_ustar(ustar, is_night, threshold) -> np.ndarray:
     2:169–182. doi:10.1111/j.1365-2486.1996.tb00070.x
     """
     ustar = _as_float(ustar, "ustar")
-    is_night = _as_bool(is_night, "is_night")
+    is_night = as_bool(is_night, "is_night")
     threshold = np.broadcast_to(np.asarray(threshold, dtype=float), ustar.shape) \
         if np.ndim(threshold) == 0 else _as_float(threshold, "ustar_threshold")
     _check_lengths(None, ustar=ustar, is_night=is_night, ustar_threshold=threshold)
@@ -425,9 +425,9 @@ def screen(frame: pd.DataFrame, potential, is_night, *, despike_z=4.0, despike_b
     if "nee" not in frame.columns:
         raise MissingColumnError("screening needs the column 'nee' (net ecosystem exchange, "
                                  f"µmol m-2 s-1); found: {', '.join(map(str, frame.columns))}")
-    index = _check_index(frame.index)
+    index = datetime_index(frame.index)
     potential = _as_float(potential, "potential")
-    is_night = _as_bool(is_night, "is_night")
+    is_night = as_bool(is_night, "is_night")
     _check_lengths(index, potential=potential, is_night=is_night)
 
     flags = range_flags(frame)
@@ -522,21 +522,8 @@ def _as_float(values, name: str) -> np.ndarray:
                             "not numeric") from None
 
 
-def _as_bool(values, name: str) -> np.ndarray:
-    array = np.asarray(values)
-    if array.dtype != bool:
-        if array.dtype.kind not in "iuf" or np.any(~np.isin(array, (0, 1))):
-            raise FluxpartError(f"{name} must be boolean (True/False for every record, no "
-                                "missing values)")
-        array = array.astype(bool)
-    return array.copy()
 
 
-def _check_index(index) -> pd.DatetimeIndex:
-    if not isinstance(index, pd.DatetimeIndex):
-        raise TimestampError(f"the time axis must be a pandas DatetimeIndex of interval starts; "
-                             f"found {type(index).__name__}")
-    return index
 
 
 def _check_lengths(index, **arrays) -> None:

@@ -34,7 +34,8 @@ import numpy as np
 import pandas as pd
 import statsmodels.api as sm
 
-from .errors import ConfigError, FluxpartError, LengthMismatchError, TimestampError
+from ._validate import as_bool, datetime_index
+from .errors import ConfigError, FluxpartError, LengthMismatchError
 
 __all__ = [
     "DETECTORS",
@@ -170,7 +171,7 @@ class UstarResult:
         numpy.ndarray
             Threshold per record [m s-1].
         """
-        index = _check_index(index)
+        index = datetime_index(index)
         if column not in self.annual.columns:
             raise ConfigError(f"u* threshold column {column!r} does not exist; use one of: "
                               f"{', '.join(c for c in self.annual.columns if 'threshold' in c)}")
@@ -213,7 +214,7 @@ def assign_seasons(index, latitude) -> pd.DataFrame:
     southern hemisphere's are shifted by six months. December is assigned to
     its own calendar year (see the module notes).
     """
-    index = _check_index(index)
+    index = datetime_index(index)
     if (isinstance(latitude, bool) or not isinstance(latitude, (int, float, np.number))
             or not -90.0 <= float(latitude) <= 90.0):
         raise ConfigError(f"[site] latitude = {latitude!r}: expected a number of degrees in "
@@ -560,7 +561,7 @@ def detect_threshold(index, nee, ustar, tair, is_night, latitude, *, detector="m
     as NumPy's default). The point estimate ``threshold`` is the detector's
     result on the data themselves, not the bootstrap median.
     """
-    index = _check_index(index)
+    index = datetime_index(index)
     seasons = assign_seasons(index, latitude)
     if detector == "moving_point":
         options = dict(temperature_classes=temperature_classes, ustar_classes=ustar_classes,
@@ -652,7 +653,7 @@ def _night_data(nee, ustar, tair, is_night, seasons, *, need_tair) -> _NightData
         raise FluxpartError("seasons must be a DataFrame with the columns 'year' and 'season', "
                             "as made by fluxpart.ustar.assign_seasons(index, latitude)")
     arrays = {"nee": _as_float(nee, "nee"), "ustar": _as_float(ustar, "ustar"),
-              "is_night": _as_bool(is_night, "is_night")}
+              "is_night": as_bool(is_night, "is_night")}
     if tair is not None:
         arrays["tair"] = _as_float(tair, "tair")
     elif need_tair:
@@ -1189,18 +1190,5 @@ def _as_float(values, name):
         raise FluxpartError(f"column {name!r} must hold numbers") from None
 
 
-def _as_bool(values, name):
-    array = np.asarray(values)
-    if array.dtype != bool:
-        if array.dtype.kind not in "iuf" or np.any(~np.isin(array, (0, 1))):
-            raise FluxpartError(f"{name} must be boolean (True/False for every record, no "
-                                "missing values)")
-        array = array.astype(bool)
-    return array.copy()
 
 
-def _check_index(index) -> pd.DatetimeIndex:
-    if not isinstance(index, pd.DatetimeIndex):
-        raise TimestampError(f"the time axis must be a pandas DatetimeIndex of interval starts; "
-                             f"found {type(index).__name__}")
-    return index
