@@ -86,7 +86,7 @@ def write_result(result, directory) -> Path:
     try:
         entries = {}
         for name, table in _result_tables(result).items():
-            frame = table
+            frame = table if table.index.name is not None else table.rename_axis("row")
             columns = [frame.index.name or "index", *frame.columns]
             sha = write_table(frame, staging / f"{name}.parquet",
                               units_for_table(_unit_table(name), columns), name)

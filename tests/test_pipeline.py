@@ -49,10 +49,13 @@ def test_result_honours_the_public_contract(demo_run):
 def test_every_output_column_has_a_unit(demo_run):
     """Every column of every output table is described with a unit in the schema."""
     _, _, result = demo_run
-    for table in ("timeseries", "daily", "monthly", "annual"):
+    for table in ("timeseries", "daily", "monthly", "annual", "audit"):
         frame = getattr(result, table)
         undescribed = [c for c in frame.columns if describe(table, c) == ("", "")]
         assert not undescribed, f"{table}: {undescribed}"
+    for name, frame in {"ustar": result.ustar, **result.parameters}.items():
+        undescribed = [c for c in frame.columns if describe("parameters", c) == ("", "")]
+        assert not undescribed, f"{name}: {undescribed}"
 
 
 def test_measured_records_are_kept_as_measured(demo_run):
