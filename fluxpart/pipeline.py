@@ -311,7 +311,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     frame = frame.copy()
     frame.index = frame.index.rename("time")
     temperature = _temperature(config, frame)
-    warnings = []
+    warnings = [f"input: {text}" for text in (provenance or {}).get("reader", {}).get(
+        "warnings", [])]
     step = progress if progress is not None else (lambda label: None)
 
     geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
@@ -441,6 +442,10 @@ def process_site_config(path, config: Config | None = None, *, progress=None) ->
     frame, report = site_config.read()
     config = Config.from_toml(path) if config is None else config
     provenance = {
+        "reader": {"records_read": report.records_read, "stamps_inserted": report.stamps_inserted,
+                   "time_marks": report.time_marks, "shift_minutes": report.shift_minutes,
+                   "columns": dict(report.columns), "units": dict(report.units),
+                   "derived": list(report.derived), "warnings": list(report.warnings)},
         "site_config": {"path": str(Path(path).resolve()), "sha256": file_sha256(path)},
         "input": {"path": str(Path(site_config.input_path).resolve()), "sha256": file_sha256(
             site_config.input_path)},

@@ -69,3 +69,13 @@ def test_module_entry_point_runs():
                                capture_output=True, text=True, check=False)
     assert completed.returncode == 0
     assert "demo" in completed.stdout and "check" in completed.stdout
+
+
+def test_run_repeats_the_readers_unit_warning(example, tmp_path, capsys):
+    """A suspected unit mix-up (VPD in kPa declared as hPa) is repeated by `fluxpart run`."""
+    example.write_text(example.read_text().replace('vpd = "kPa"', 'vpd = "hPa"'))
+    main(["run", str(example), "--out", str(tmp_path / "out"), "--quiet"])
+    out = capsys.readouterr().out
+    assert "warning: input:" in out and "kPa" in out
+    manifest = json.loads((tmp_path / "out" / "manifest.json").read_text())
+    assert any("kPa" in text for text in manifest["provenance"]["reader"]["warnings"])
