@@ -40,7 +40,6 @@ import re
 import shutil
 import sys
 import tempfile
-import tomllib
 import traceback
 import uuid
 from collections import Counter
@@ -51,6 +50,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
+from ._validate import read_toml
 from .config import Config, suggest_key
 from .errors import ConfigError, FluxpartError, InputFileError
 from .manifest import CAUTION, MANIFEST_FORMAT, library_versions, read_manifest
@@ -241,16 +241,7 @@ def read_sites_file(path) -> NetworkFile:
     ``north-tower``), and a key still taken gets ``-2``, ``-3``, ...
     """
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        raise InputFileError(f"network file {str(path)!r} does not exist") from None
-    except (OSError, UnicodeDecodeError) as error:
-        raise InputFileError(f"network file {str(path)!r} cannot be read: {error}") from None
-    try:
-        document = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as error:
-        raise ConfigError(f"network file {str(path)!r} is not valid TOML: {error}") from None
+    document = read_toml(path, "network file")
     for key in document:
         if key != "batch":
             raise ConfigError(f"network file {str(path)!r}: unknown table [{key}]"

@@ -9,11 +9,10 @@ nearest valid one.
 from __future__ import annotations
 
 import difflib
-import tomllib
 from dataclasses import asdict, dataclass, fields
-from pathlib import Path
 
-from .errors import ConfigError, InputFileError
+from ._validate import read_toml
+from .errors import ConfigError
 
 __all__ = ["Config", "suggest_key"]
 
@@ -210,13 +209,7 @@ class Config:
     @classmethod
     def from_toml(cls, path) -> Config:
         """Read the ``[processing]`` table of a site config; defaults where absent."""
-        path = Path(path)
-        try:
-            document = tomllib.loads(path.read_text(encoding="utf-8"))
-        except FileNotFoundError:
-            raise InputFileError(f"site config {str(path)!r} does not exist") from None
-        except tomllib.TOMLDecodeError as error:
-            raise ConfigError(f"site config {str(path)!r} is not valid TOML: {error}") from None
+        document = read_toml(path, "site config")
         processing = document.get("processing", {})
         if not isinstance(processing, dict):
             raise ConfigError("[processing] must be a table of settings")

@@ -190,7 +190,7 @@ def _as_values(values, name: str, index) -> np.ndarray:
         raise FluxpartError(f"{name}: expected a 1-D series, found shape {array.shape}")
     if array.size != len(index):
         raise LengthMismatchError(f"{name}: {array.size} values for {len(index)} timestamps; give one "
-                            "value per record of the index")
+                                  "value per record of the index")
     infinite = np.isinf(array)
     if infinite.any():
         row = int(np.flatnonzero(infinite)[0])

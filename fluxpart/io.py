@@ -17,13 +17,13 @@ from __future__ import annotations
 
 import difflib
 import math
-import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
 
+from ._validate import read_toml
 from .config import suggest_key
 from .errors import (
     ConfigError,
@@ -311,16 +311,7 @@ def read_site_config(path) -> SiteConfig:
     offset or stamp position would silently shift day and night by hours.
     """
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        raise InputFileError(f"site config {str(path)!r} does not exist") from None
-    except (OSError, UnicodeDecodeError) as error:
-        raise InputFileError(f"site config {str(path)!r} cannot be read: {error}") from None
-    try:
-        document = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as error:
-        raise ConfigError(f"site config {str(path)!r} is not valid TOML: {error}") from None
+    document = read_toml(path, "site config")
 
     _check_keys(document, _TOP_LEVEL_KEYS, "site config: top-level table", "[{key}]")
     for table in ("site", "input"):

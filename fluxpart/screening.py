@@ -531,7 +531,7 @@ def _check_lengths(index, **arrays) -> None:
     for name, array in arrays.items():
         if len(array) != expected:
             raise LengthMismatchError(f"{name} has {len(array)} values but the record has "
-                                f"{expected}; give one value per interval")
+                                      f"{expected}; give one value per interval")
 
 
 def _days_since_first_midnight(index: pd.DatetimeIndex) -> np.ndarray:

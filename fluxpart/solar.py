@@ -420,7 +420,7 @@ def night_mask(rg, potential, rg_threshold=10.0, *, potential_epsilon=1e-6) -> n
     potential = np.asarray(potential, dtype=float)
     if rg.shape != potential.shape:
         raise LengthMismatchError(f"night_mask: rg has shape {rg.shape} but potential has shape "
-                            f"{potential.shape}; pass the same records")
+                                  f"{potential.shape}; pass the same records")
     by_potential = potential <= potential_epsilon
     with np.errstate(invalid="ignore"):
         by_rg = rg < rg_threshold

@@ -46,11 +46,11 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from ._validate import as_float
 from .constants import CARBON_MOLAR_MASS, CO2_MOLAR_MASS
 from .errors import (
     FluxpartError,
     InsufficientDataError,
-    LengthMismatchError,
     MissingColumnError,
     SpacingError,
 )
@@ -229,14 +229,7 @@ def _interval_minutes(index) -> int:
 
 
 def _values(values, name: str, n: int) -> np.ndarray:
-    try:
-        array = np.asarray(values, dtype=float)
-    except (TypeError, ValueError):
-        raise FluxpartError(f"uncertainty: {name} is not numeric") from None
-    if array.shape != (n,):
-        raise LengthMismatchError(f"uncertainty: {name} has {array.size} values; expected one per "
-                            f"record ({n})")
-    return array
+    return as_float(values, f"uncertainty: {name}", n)
 
 
 def _seconds_factor(interval_minutes) -> float:

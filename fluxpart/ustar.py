@@ -661,7 +661,7 @@ def _night_data(nee, ustar, tair, is_night, seasons, *, need_tair) -> _NightData
     for name, array in arrays.items():
         if len(array) != len(seasons):
             raise LengthMismatchError(f"{name} has {len(array)} values but the record has "
-                                f"{len(seasons)}; give one value per interval")
+                                      f"{len(seasons)}; give one value per interval")
     temperature = arrays.get("tair", np.zeros(len(seasons)))
     usable = (arrays["is_night"] & np.isfinite(arrays["nee"]) & np.isfinite(arrays["ustar"])
               & np.isfinite(temperature))

@@ -61,11 +61,11 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from .._validate import as_float
 from ..constants import LLOYD_TAYLOR_T0_KELVIN, LLOYD_TAYLOR_TREF_KELVIN
 from ..errors import (
     ConfigError,
     DuplicateTimestampError,
-    FluxpartError,
     ImplausibleValueError,
     InsufficientDataError,
     LengthMismatchError,
@@ -238,12 +238,12 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, e0, *
         raise ConfigError(f"daytime night_in_fit = {night_in_fit!r}: expected true or false")
     days = _days_since_start(index)
     n = len(days)
-    nee = _as_series_array(nee_measured, "nee_measured", n)
-    rg = _as_series_array(rg, "rg", n)
-    vpd = _as_series_array(vpd, "vpd", n)
-    temperature = _as_series_array(temperature, "temperature", n)
+    nee = as_float(nee_measured, "nee_measured", n)
+    rg = as_float(rg, "rg", n)
+    vpd = as_float(vpd, "vpd", n)
+    temperature = as_float(temperature, "temperature", n)
     night = _as_bool_array(is_night, "is_night", n)
-    e0 = _as_series_array(e0, "e0", n)
+    e0 = as_float(e0, "e0", n)
     bad_e0 = ~(np.isfinite(e0) & (e0 > 0))
     if bad_e0.any():
         row = int(np.flatnonzero(bad_e0)[0])
@@ -350,17 +350,6 @@ def _days_since_start(index) -> np.ndarray:
     return np.asarray((index - index[0].normalize()) / pd.Timedelta(days=1), dtype=float)
 
 
-def _as_series_array(values, name, n) -> np.ndarray:
-    try:
-        array = np.asarray(values, dtype=float)
-    except (TypeError, ValueError):
-        raise FluxpartError(f"{name}: expected numbers, found values that are not") from None
-    if array.shape != (n,):
-        raise LengthMismatchError(f"{name}: expected one value per record ({n}), found shape "
-                            f"{array.shape}")
-    return array
-
-
 def _as_bool_array(values, name, n) -> np.ndarray:
     if isinstance(values, pd.Series) and values.dtype == "boolean" and not values.hasnans:
         values = values.to_numpy(dtype=bool)
@@ -370,7 +359,7 @@ def _as_bool_array(values, name, n) -> np.ndarray:
                                     f"found dtype {array.dtype}")
     if array.shape != (n,):
         raise LengthMismatchError(f"{name}: expected one value per record ({n}), found shape "
-                            f"{array.shape}")
+                                  f"{array.shape}")
     return array
 
 

@@ -31,6 +31,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from .._validate import as_float
 from ..constants import (
     KELVIN_OFFSET,
     LLOYD_TAYLOR_E0_KELVIN,
@@ -128,18 +129,7 @@ def _check_index(index) -> pd.DatetimeIndex:
 
 
 def _as_float(name: str, values, length: int) -> np.ndarray:
-    try:
-        if isinstance(values, (pd.Series, pd.Index)):
-            array = values.to_numpy(dtype=float, na_value=np.nan)
-        else:
-            array = np.asarray(values, dtype=float)
-    except (TypeError, ValueError) as error:
-        raise FluxpartError(f"{name}: expected numbers, found values that are not: {error}") \
-            from None
-    if array.ndim != 1 or array.shape[0] != length:
-        raise LengthMismatchError(f"{name}: expected {length} values aligned with the index, "
-                            f"found shape {array.shape}")
-    return array
+    return as_float(values, name, length)
 
 
 def _as_temperature(name: str, values, length: int) -> np.ndarray:
@@ -166,7 +156,7 @@ def _as_night(name: str, values, length: int) -> np.ndarray:
     array = np.asarray(values)
     if array.ndim != 1 or array.shape[0] != length:
         raise LengthMismatchError(f"{name}: expected {length} values aligned with the index, "
-                            f"found shape {array.shape}")
+                                  f"found shape {array.shape}")
     if array.dtype == bool:
         return array
     try:
