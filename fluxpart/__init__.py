@@ -3,19 +3,37 @@
 Screen the records, find the u* threshold, gap-fill NEE and its drivers by
 marginal distribution sampling, partition NEE into GPP and Reco by the nighttime
 and daytime methods, and sum days, months and years with coverage.
+
+The public names below are imported on first use (PEP 562), so ``import fluxpart``
+stays quick: the science stack (pandas, SciPy, statsmodels) loads only when a name
+that needs it is touched, and the demo, report and batch paths only when used.
 """
 
-from . import demo
-from .config import Config
-from .io import read_config
-from .manifest import load
-from .pipeline import Result, process, process_site_config
-from .site import Site
+from __future__ import annotations
 
+from importlib import import_module
+
+# The one place the version is written; pyproject.toml reads it from here.
 __version__ = "0.1.0"
+
+#: Public name -> (module, attribute); attribute None means the module itself.
+_LAZY = {
+    "Config": (".config", "Config"),
+    "FluxpartError": (".errors", "FluxpartError"),
+    "FluxpartWarning": (".errors", "FluxpartWarning"),
+    "Result": (".pipeline", "Result"),
+    "Site": (".site", "Site"),
+    "demo": (".demo", None),
+    "load": (".manifest", "load"),
+    "process": (".pipeline", "process"),
+    "process_site_config": (".pipeline", "process_site_config"),
+    "read_config": (".io", "read_config"),
+}
 
 __all__ = [
     "Config",
+    "FluxpartError",
+    "FluxpartWarning",
     "Result",
     "Site",
     "__version__",
@@ -25,3 +43,19 @@ __all__ = [
     "process_site_config",
     "read_config",
 ]
+
+
+def __getattr__(name: str):
+    """Import a public name on first use and keep it in the package namespace."""
+    try:
+        module_name, attribute = _LAZY[name]
+    except KeyError:
+        raise AttributeError(f"module 'fluxpart' has no attribute {name!r}") from None
+    module = import_module(module_name, __name__)
+    value = module if attribute is None else getattr(module, attribute)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(__all__))

@@ -19,7 +19,6 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
-from scipy.signal import lfilter
 
 from .constants import LLOYD_TAYLOR_E0_KELVIN
 from .errors import ConfigError
@@ -93,6 +92,8 @@ def _ar1(rng, n, step_minutes, time_scale_minutes, sd):
     phi = np.exp(-step_minutes / time_scale_minutes)
     shocks = rng.standard_normal(n) * sd * np.sqrt(1.0 - phi**2)
     first = rng.standard_normal() * sd
+    from scipy.signal import lfilter  # imported on use: scipy.signal is slow to import
+
     out, _ = lfilter([1.0], [1.0, -phi], shocks, zi=[phi * first])
     return out
 
@@ -100,6 +101,8 @@ def _ar1(rng, n, step_minutes, time_scale_minutes, sd):
 def _low_pass(values, step_minutes, time_scale_minutes):
     """First-order lag (exponential smoothing) started at the first value."""
     keep = np.exp(-step_minutes / time_scale_minutes)
+    from scipy.signal import lfilter
+
     out, _ = lfilter([1.0 - keep], [1.0, -keep], values, zi=[keep * values[0]])
     return out
 

@@ -9,6 +9,7 @@ __all__ = [
     "ConfigError",
     "DuplicateTimestampError",
     "FluxpartError",
+    "FluxpartWarning",
     "ImplausibleValueError",
     "InputFileError",
     "InsufficientDataError",
@@ -67,3 +68,11 @@ class ImplausibleValueError(FluxpartError):
 
 class InsufficientDataError(FluxpartError):
     """Too few usable records for a method to give a defensible estimate."""
+
+
+class FluxpartWarning(UserWarning):
+    """A note a reader of the budget must see (issued through :mod:`warnings`).
+
+    Fall-backs used, methods that disagree, partial years, input notes; the same
+    texts are kept in ``Result.warnings`` and the manifest.
+    """

@@ -32,7 +32,6 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
-import statsmodels.api as sm
 
 from ._validate import as_bool, datetime_index
 from .errors import ConfigError, FluxpartError, LengthMismatchError
@@ -901,6 +900,8 @@ def _critical_value(n_bins: int, alpha: float, edge: int) -> float:
 def _change_point_statistics(x, y, enough, fit, critical, significant, stratum_count,
                              n_groups, n_t):
     """Regression statistics of each stratum at its chosen change points (statsmodels OLS)."""
+    import statsmodels.api as sm  # only this detector needs it; keeps `import fluxpart` quick
+
     n_strata = x.shape[0]
     names = ("intercept", "slope", "plateau", "sse", "line_intercept", "line_slope", "line_sse",
              "slope_change", "diagnostic_sse")
