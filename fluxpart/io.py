@@ -1,21 +1,37 @@
-"""Read and validate a site's input: the site TOML and its CSV of tower records.
+"""Read and validate a site's input: the site TOML and its files of tower records.
 
-The reader turns a delimited text file of half-hourly or hourly records into the
-canonical frame of :mod:`fluxpart.variables`: canonical column names, canonical
-units, float64 values with missing data as NaN, and a tz-naive
-:class:`~pandas.DatetimeIndex` named ``"time"`` of interval *start* stamps with a
-regular 30- or 60-minute frequency. Everything it finds out on the way (records
-read, stamps inserted, shift applied, derived variables, out-of-range counts,
-suspected unit mix-ups) goes into a :class:`ReadReport`.
+The reader turns one or more delimited text files of half-hourly or hourly records
+into the canonical frame of :mod:`fluxpart.variables`: canonical column names,
+canonical units, float64 values with missing data as NaN, and a tz-naive
+:class:`~pandas.DatetimeIndex` named ``"time"`` of interval *start* stamps in local
+standard time with a regular 30- or 60-minute frequency. Everything it finds out
+on the way (files and encodings read, stamps converted, duplicate rows dropped or
+merged, stamps inserted, flags applied, storage added, derived variables,
+out-of-range and non-finite counts, suspected unit mix-ups) goes into a
+:class:`ReadReport`.
 
-Every problem with the config or the file raises a subclass of
-:class:`~fluxpart.errors.FluxpartError` whose message names the setting, column
-or row at fault and a fix. The input file is only read, never written.
+Layouts a logger or a network export produces are read as they are (DESIGN.md
+§4.1 "Input layouts"): several files or a glob, split date and time columns, lines
+before the header and between header and data (a units line), a decimal comma,
+other delimiters and encodings, stamps carrying a UTC offset, civil time with
+daylight saving, hour ``24:00``, exact duplicate rows, a site flag whose accepted
+values are listed, a CO2 storage term and PPFD instead of global radiation. Stamp
+handling lives in :mod:`fluxpart.timestamps`, unit checks in
+:mod:`fluxpart.unit_checks`.
+
+Every problem with the config or the files raises a subclass of
+:class:`~fluxpart.errors.FluxpartError` whose one-line message names the setting,
+column, file or line at fault and a fix. The input files are only read, never
+written.
 """
 
 from __future__ import annotations
 
+import codecs
 import difflib
+import glob
+import hashlib
+import io as _io
 import math
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -31,21 +47,30 @@ from .errors import (
     ImplausibleValueError,
     InputFileError,
     MissingColumnError,
-    NonMonotonicTimestampError,
-    SpacingError,
-    TimestampError,
 )
 from .site import Site
+from .timestamps import (
+    INTERVALS_MINUTES,
+    check_order,
+    check_time_zone,
+    clock_alignment_warning,
+    infer_interval,
+    inserted_runs,
+    join_time_columns,
+    parse_stamps,
+)
+from .unit_checks import IMPLAUSIBLE_SHARE, implausible_message, mixup_messages
 from .variables import (
+    PPFD_PER_RG,
+    READER_VARIABLES,
     REQUIRED,
     VARIABLES,
-    saturation_vapour_pressure,
     to_canonical,
-    units_for,
     vpd_from_rh,
 )
 
 __all__ = [
+    "ABSURD_MAGNITUDE",
     "IMPLAUSIBLE_SHARE",
     "INTERVALS_MINUTES",
     "TIME_MARKS",
@@ -57,35 +82,27 @@ __all__ = [
     "read_table",
 ]
 
-#: Record intervals fluxpart accepts [minutes].
-INTERVALS_MINUTES = (30, 60)
-
 #: Where a file's stamp sits in its averaging interval.
 TIME_MARKS = ("start", "middle", "end")
 
-#: A variable stops the reader when more than this share of its present values lies
-#: outside the plausible range of :data:`fluxpart.variables.VARIABLES` (and at least
-#: 5 values do), or when its median does. Our choice:
-#: isolated outliers (spikes, a bad hour) stay far below 5 % and are left to
-#: screening; a unit or mapping mistake affects most of the record.
-IMPLAUSIBLE_SHARE = 0.05
+#: Numbers of this magnitude or more (and infinities) are read as missing and counted:
+#: no tower variable comes near it in any unit, while loggers and exports write such
+#: numbers (1e38, the largest float 1.8e308) for "no value" (our choice).
+ABSURD_MAGNITUDE = 1e15
 
-_IMPLAUSIBLE_MIN_COUNT = 5
 _DEFAULT_MISSING = (-9999,)
+_DEFAULT_FLAG_ACCEPT = (0,)
 _TOP_LEVEL_KEYS = ("input", "processing", "site")
 _SITE_KEYS = ("latitude", "longitude", "name", "utc_offset")
 _SITE_REQUIRED = ("name", "latitude", "longitude", "utc_offset")
-_INPUT_KEYS = ("columns", "delimiter", "interval_minutes", "missing", "path", "time_column",
-               "time_format", "time_marks", "units")
+_INPUT_KEYS = ("accept_units", "columns", "decimal", "delimiter", "encoding", "flag_accept",
+               "interval_minutes", "missing", "path", "rows_after_header",
+               "rows_before_header", "time_column", "time_format", "time_marks", "time_zone",
+               "units")
 _INPUT_REQUIRED = ("path", "time_column", "time_format", "time_marks", "columns")
 _FLOAT_SPELLINGS_OF_NAN = ("nan", "+nan", "-nan")
-_RANGES_SHOWN = 5
-# Usual band of the 90th percentile of |value| over a record, in the canonical unit,
-# used only to rank alternative units when several would make a column plausible
-# (our choice, common practice).
-_TYPICAL_P90 = {"nee": (1.0, 50.0), "rg": (100.0, 1200.0), "tair": (5.0, 45.0),
-                "tsoil": (5.0, 45.0), "vpd": (2.0, 50.0), "ustar": (0.1, 2.0),
-                "rh": (30.0, 100.0)}
+_WHITESPACE = "whitespace"
+_GLOB_CHARACTERS = set("*?[")
 
 
 @dataclass(frozen=True)
@@ -95,7 +112,7 @@ class ReadReport:
     Attributes
     ----------
     source : str
-        Path of the file read.
+        Path of the file read (several joined by ``", "``).
     interval_minutes : int
         Record interval [minutes], 30 or 60.
     time_marks : str
@@ -103,13 +120,13 @@ class ReadReport:
     shift_minutes : float
         Shift subtracted from the file's stamps to get interval starts [minutes].
     records_read : int
-        Data rows read from the file (blank lines not counted).
+        Data rows read from the files (blank lines not counted).
     records : int
-        Rows of the canonical frame (records read plus stamps inserted).
+        Rows of the canonical frame (records kept plus stamps inserted).
     first_start, last_start : pandas.Timestamp or None
         First and last interval start of the frame.
     stamps_inserted : int
-        Stamps missing from the file and inserted as all-NaN rows.
+        Stamps missing from the files and inserted as all-NaN rows.
     inserted_ranges : tuple of (Timestamp, Timestamp, int)
         The first few runs of inserted stamps: first start, last start, count.
     inserted_runs : int
@@ -121,13 +138,38 @@ class ReadReport:
     missing_codes : tuple
         Codes read as missing.
     derived : tuple of str
-        Canonical variables computed rather than read (``vpd`` from ``rh`` and ``tair``).
+        Canonical variables computed rather than read (``vpd`` from ``rh`` and
+        ``tair``, ``rg`` from ``ppfd``).
     missing_cells : dict
         Canonical name -> cells that were empty or a missing code.
     outside_range : dict
         Canonical name -> present values outside the plausible range (left for screening).
     warnings : tuple of str
         Problems found that did not stop the reader.
+    files : tuple of str
+        Every file read, in the order given.
+    encodings : tuple of str
+        Text encoding each file was read with.
+    duplicate_rows : int
+        Rows dropped because an identical row (same stamp, same value in every
+        column read) came earlier in the same file.
+    merged_rows : int
+        Rows dropped because an identical row came in another file (overlapping files).
+    stamp_conversions : dict
+        What was done to stamps: ``hour_24`` (read as midnight of the next day),
+        ``utc_offset`` (converted from stamps carrying an offset), ``daylight_saving``
+        (moved from civil to standard time), ``time_zone`` (the zone, if any).
+    nonfinite_cells : dict
+        Canonical name -> cells holding an infinity or a number of magnitude
+        :data:`ABSURD_MAGNITUDE` or more, read as missing.
+    flag_accept : tuple
+        Site-flag values that keep a record.
+    flag_rejected : int
+        Records the site's flag(s) reject.
+    storage_missing : int
+        Records with a turbulent flux but no storage term, whose NEE was set missing.
+    accepted_units : tuple of str
+        Variables listed in ``[input] accept_units`` whose unit checks only warned.
     """
 
     source: str
@@ -148,16 +190,40 @@ class ReadReport:
     missing_cells: dict = field(default_factory=dict)
     outside_range: dict = field(default_factory=dict)
     warnings: tuple = ()
+    files: tuple = ()
+    encodings: tuple = ()
+    duplicate_rows: int = 0
+    merged_rows: int = 0
+    stamp_conversions: dict = field(default_factory=dict)
+    nonfinite_cells: dict = field(default_factory=dict)
+    flag_accept: tuple = _DEFAULT_FLAG_ACCEPT
+    flag_rejected: int = 0
+    storage_missing: int = 0
+    accepted_units: tuple = ()
 
     def __str__(self) -> str:
-        lines = [
-            f"source            {self.source}",
+        files = self.files or (self.source,)
+        lines = [f"source            {files[0]}"]
+        lines.extend(f"                  {name}" for name in files[1:])
+        if self.encodings and set(self.encodings) != {"utf-8"}:
+            lines.append("encoding          " + ", ".join(sorted(set(self.encodings))))
+        lines += [
             f"interval          {self.interval_minutes} min",
             f"time marks        {self.time_marks} (stamps shifted by -{self.shift_minutes:g} min "
             "to interval starts)",
+        ]
+        conversions = _conversion_text(self.stamp_conversions)
+        if conversions:
+            lines.append(f"stamps converted  {conversions}")
+        lines += [
             f"period            {_stamp(self.first_start)} .. {_stamp(self.last_start)} "
             "(interval starts)",
             f"records read      {self.records_read}",
+        ]
+        if self.duplicate_rows or self.merged_rows:
+            lines.append(f"rows dropped      {self.duplicate_rows} exact duplicate(s) within a "
+                         f"file, {self.merged_rows} identical in overlapping files")
+        lines += [
             f"records           {self.records}",
             f"stamps inserted   {self.stamps_inserted}"
             + (f" in {self.inserted_runs} run(s)" if self.inserted_runs else ""),
@@ -171,11 +237,44 @@ class ReadReport:
             for name, source in self.columns.items()))
         lines.append("missing codes     " + (", ".join(repr(c) for c in self.missing_codes)
                                              or "none"))
+        nonfinite = {k: v for k, v in self.nonfinite_cells.items() if v}
+        if nonfinite:
+            lines.append("non-finite        " + ", ".join(f"{k}: {v}" for k, v in nonfinite.items())
+                         + " (read as missing)")
+        if "nee_flag" in self.columns:
+            lines.append(f"site flag         keeps values {list(self.flag_accept)}; "
+                         f"{self.flag_rejected} record(s) rejected")
+        if self.storage_missing:
+            lines.append(f"storage           missing for {self.storage_missing} record(s) with "
+                         "a flux: their NEE is missing")
+        if self.accepted_units:
+            lines.append("accept_units      " + ", ".join(self.accepted_units)
+                         + " (unit checks only warn)")
         lines.append("derived           " + (", ".join(self.derived) or "none"))
         outside = {k: v for k, v in self.outside_range.items() if v}
         lines.append("outside range     " + (", ".join(f"{k}: {v}" for k, v in outside.items())
                                              or "none"))
         return "\n".join(lines)
+
+    def to_dict(self) -> dict:
+        """The report as plain JSON-ready values (for the manifest's provenance)."""
+        return {
+            "files": list(self.files or (self.source,)),
+            "encodings": list(self.encodings),
+            "records_read": self.records_read, "records": self.records,
+            "interval_minutes": self.interval_minutes,
+            "time_marks": self.time_marks, "shift_minutes": self.shift_minutes,
+            "stamp_conversions": dict(self.stamp_conversions),
+            "duplicate_rows": self.duplicate_rows, "merged_rows": self.merged_rows,
+            "stamps_inserted": self.stamps_inserted,
+            "columns": dict(self.columns), "units": dict(self.units),
+            "missing_cells": dict(self.missing_cells),
+            "nonfinite_cells": dict(self.nonfinite_cells),
+            "flag_accept": list(self.flag_accept), "flag_rejected": self.flag_rejected,
+            "storage_missing": self.storage_missing,
+            "accepted_units": list(self.accepted_units),
+            "derived": list(self.derived), "warnings": list(self.warnings),
+        }
 
 
 @dataclass(frozen=True)
@@ -188,48 +287,95 @@ class SiteConfig:
         The measurement site.
     config_path : pathlib.Path
         The TOML file.
-    input_path : pathlib.Path
-        The record file, resolved relative to the TOML file.
+    input_paths : tuple of pathlib.Path
+        The record files, resolved relative to the TOML file (a glob expanded and
+        sorted by name).
     columns : dict
-        Canonical name -> file column, as written in ``[input.columns]``.
+        Canonical name -> file column, as written in ``[input.columns]``
+        (``nee_flag`` may name a list of columns).
     units : dict
         Canonical name -> file unit, as written in ``[input.units]``.
-    time_column, time_format, time_marks : str
+    time_column : str or tuple of str
+        Column(s) holding the stamps; several are joined with one space.
+    time_format, time_marks : str
         Time settings of ``[input]``.
     missing : tuple
         Missing-value codes, numbers or strings.
     delimiter : str
-        Field delimiter of the file.
+        Field delimiter of the file (``"whitespace"`` for runs of blanks).
     interval_minutes : int or None
         Record interval [minutes], or ``None`` to infer it.
     document : dict
         The whole TOML document as read (``[processing]`` is for
         :meth:`fluxpart.Config.from_toml`).
+    decimal : str
+        Decimal mark, ``"."`` or ``","``.
+    encoding : str or None
+        Text encoding, or ``None`` to detect it (byte-order marks, UTF-16, UTF-8).
+    rows_before_header, rows_after_header : int
+        Lines skipped before the header and between header and data.
+    time_zone : str or None
+        Zone whose civil time (with daylight saving) the stamps are in.
+    flag_accept : tuple of float
+        Site-flag values that keep a record.
+    accept_units : tuple of str
+        Variables whose unit checks only warn.
     """
 
     site: Site
     config_path: Path
-    input_path: Path
+    input_paths: tuple
     columns: dict
     units: dict
-    time_column: str
+    time_column: str | tuple
     time_format: str
     time_marks: str
     missing: tuple
     delimiter: str
     interval_minutes: int | None
     document: dict
+    decimal: str = "."
+    encoding: str | None = None
+    rows_before_header: int = 0
+    rows_after_header: int = 0
+    time_zone: str | None = None
+    flag_accept: tuple = _DEFAULT_FLAG_ACCEPT
+    accept_units: tuple = ()
+
+    @property
+    def input_path(self) -> Path:
+        """The record file when there is one; the first of several otherwise."""
+        return self.input_paths[0]
+
+    def input_sha256(self) -> str:
+        """SHA-256 of the input: of the file itself, or of the list of files and hashes.
+
+        For one file it is the file's own SHA-256. For several it is the SHA-256 of
+        the text ``"<name>\\t<sha256>\\n"`` per file in the order read, so that a
+        changed, added, removed or renamed file changes it.
+        """
+        hashes = [_file_sha256(path) for path in self.input_paths]
+        if len(hashes) == 1:
+            return hashes[0]
+        text = "".join(f"{path.name}\t{digest}\n"
+                       for path, digest in zip(self.input_paths, hashes, strict=True))
+        return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
     def read(self) -> tuple[pd.DataFrame, ReadReport]:
         """Read the site's records: ``(frame, report)`` as from :func:`read_table`."""
-        return read_table(self.input_path, **self.table_arguments())
+        return read_table(list(self.input_paths), **self.table_arguments())
 
     def table_arguments(self) -> dict:
         """Return the keyword arguments of :func:`read_table` for this site."""
         return {"columns": dict(self.columns), "units": dict(self.units),
                 "time_column": self.time_column, "time_format": self.time_format,
                 "time_marks": self.time_marks, "missing": self.missing,
-                "delimiter": self.delimiter, "interval_minutes": self.interval_minutes}
+                "delimiter": self.delimiter, "interval_minutes": self.interval_minutes,
+                "decimal": self.decimal, "encoding": self.encoding,
+                "rows_before_header": self.rows_before_header,
+                "rows_after_header": self.rows_after_header, "time_zone": self.time_zone,
+                "flag_accept": self.flag_accept, "accept_units": self.accept_units,
+                "site": self.site}
 
 
 def read_config(path) -> tuple[pd.DataFrame, Site]:
@@ -265,20 +411,7 @@ def read_config(path) -> tuple[pd.DataFrame, Site]:
 
 
 def read_input(site_config: SiteConfig) -> tuple[pd.DataFrame, ReadReport]:
-    """Read the records of a parsed site config.
-
-    Parameters
-    ----------
-    site_config : SiteConfig
-        From :func:`read_site_config`.
-
-    Returns
-    -------
-    frame : pandas.DataFrame
-        Canonical frame.
-    report : ReadReport
-        What was found and done.
-    """
+    """Read the records of a parsed site config: ``(frame, report)``."""
     return site_config.read()
 
 
@@ -300,7 +433,8 @@ def read_site_config(path) -> SiteConfig:
         If the TOML file does not exist or cannot be read.
     ConfigError
         If the TOML is invalid, a table or key is unknown (the nearest valid key is
-        suggested), a required key is missing or a value has the wrong type or range.
+        suggested), a required key is missing, a value has the wrong type or range,
+        or ``path`` names or matches no file.
     UnitError
         If ``[input.units]`` names a unit unknown for its variable.
 
@@ -331,158 +465,258 @@ def read_site_config(path) -> SiteConfig:
     site = Site(name=site_table["name"], latitude=site_table["latitude"],
                 longitude=site_table["longitude"], utc_offset=site_table["utc_offset"])
 
-    input_path = input_table["path"]
-    if not isinstance(input_path, str) or not input_path.strip():
-        raise ConfigError(f"[input] path = {input_path!r}: expected a file path (a string, "
-                          "relative to the site config)")
-    for key in ("time_column", "time_format"):
-        if not isinstance(input_table[key], str) or not input_table[key]:
-            raise ConfigError(f"[input] {key} = {input_table[key]!r}: expected a non-empty string")
+    input_paths = _resolve_paths(input_table["path"], path.parent)
+    time_column = _check_time_column(input_table["time_column"])
+    if not isinstance(input_table["time_format"], str) or not input_table["time_format"]:
+        raise ConfigError(f"[input] time_format = {input_table['time_format']!r}: expected a "
+                          "non-empty string such as \"%Y-%m-%d %H:%M\"")
     columns = _string_table(input_table["columns"], "[input.columns]")
     units = _string_table(input_table.get("units", {}), "[input.units]")
     _check_mapping(columns, units)
+    time_zone = input_table.get("time_zone")
+    if time_zone is not None:
+        check_time_zone(time_zone, site.utc_offset)
+    delimiter = _check_delimiter(input_table.get("delimiter", ","))
     return SiteConfig(
         site=site,
         config_path=path,
-        input_path=(path.parent / input_path),
+        input_paths=input_paths,
         columns=columns,
         units=units,
-        time_column=input_table["time_column"],
+        time_column=time_column,
         time_format=input_table["time_format"],
         time_marks=_check_time_marks(input_table["time_marks"]),
         missing=_check_missing(input_table.get("missing", list(_DEFAULT_MISSING))),
-        delimiter=_check_delimiter(input_table.get("delimiter", ",")),
+        delimiter=delimiter,
         interval_minutes=_check_interval(input_table.get("interval_minutes")),
         document=document,
+        decimal=_check_decimal(input_table.get("decimal", "."), delimiter),
+        encoding=_check_encoding(input_table.get("encoding")),
+        rows_before_header=_check_rows(input_table.get("rows_before_header", 0),
+                                       "rows_before_header"),
+        rows_after_header=_check_rows(input_table.get("rows_after_header", 0),
+                                      "rows_after_header"),
+        time_zone=time_zone,
+        flag_accept=_check_flag_accept(input_table.get("flag_accept",
+                                                       list(_DEFAULT_FLAG_ACCEPT))),
+        accept_units=_check_accept_units(input_table.get("accept_units", [])),
     )
 
 
 def read_table(path, *, columns, units=None, time_column, time_format, time_marks="start",
-               missing=_DEFAULT_MISSING, delimiter=",", interval_minutes=None):
-    """Read a delimited file of tower records into the canonical frame.
+               missing=_DEFAULT_MISSING, delimiter=",", interval_minutes=None, decimal=".",
+               encoding=None, rows_before_header=0, rows_after_header=0, time_zone=None,
+               flag_accept=_DEFAULT_FLAG_ACCEPT, accept_units=(), site=None):
+    """Read delimited files of tower records into the canonical frame.
 
     Parameters
     ----------
-    path : str or path-like
-        The file; one header line, then one record per line.
+    path : str, path-like or list of them
+        The file, or several files read as one record in time order.
     columns : dict
         Canonical name -> column name in the file. A canonical variable not in the
-        mapping is read from a file column of its own canonical name if there is one.
+        mapping is read from a file column of its own canonical name if there is
+        one. ``nee_flag`` may map a list of flag columns. ``storage`` (CO2 storage
+        flux) and ``ppfd`` may be mapped too (see Notes).
     units : dict, optional
         Canonical name -> unit of the file's column, where it is not the canonical
         unit (spellings: :func:`fluxpart.variables.units_for`).
-    time_column : str
-        Column holding the stamps.
+    time_column : str or list of str
+        Column(s) holding the stamps; several are joined with one space before
+        `time_format` applies (a date column and a time column).
     time_format : str
-        :func:`datetime.datetime.strptime` format of the stamps (or ``"ISO8601"``).
+        :func:`datetime.datetime.strptime` format of the stamps (or ``"ISO8601"``);
+        ``%z`` reads a UTC offset.
     time_marks : {"start", "middle", "end"}
-        Where each stamp sits in its averaging interval, in the file's local
-        standard time.
+        Where each stamp sits in its averaging interval.
     missing : sequence of float or str
         Codes meaning "no value". Numbers match within 1e-6 relative; strings match
-        whole cells, ignoring case and surrounding blanks. Empty cells and ``NaN`` are
-        always missing.
+        whole cells, ignoring case and surrounding blanks. Empty cells and ``NaN``
+        are always missing; infinities and numbers of magnitude
+        :data:`ABSURD_MAGNITUDE` or more are read as missing and counted.
     delimiter : str
-        Field delimiter.
+        Field delimiter, one character, or ``"whitespace"`` for runs of blanks.
     interval_minutes : {30, 60}, optional
         Record interval [minutes]; inferred from the most common spacing if omitted.
+    decimal : {".", ","}
+        Decimal mark of the numbers.
+    encoding : str, optional
+        Text encoding (e.g. ``"latin-1"``, ``"utf-16"``); by default a byte-order
+        mark or the byte pattern of UTF-16 decides, else UTF-8.
+    rows_before_header, rows_after_header : int
+        Lines skipped before the header line and between it and the data (a units
+        line).
+    time_zone : str, optional
+        IANA ``"Area/City"`` zone: the stamps are civil time with daylight saving
+        and are converted to local standard time (needs `site`).
+    flag_accept : sequence of float
+        Values of the site flag(s) that keep a record (default ``[0]``).
+    accept_units : sequence of str
+        Variables whose unit and plausibility checks only warn instead of refusing
+        the file (when the user knows the values are right).
+    site : Site, optional
+        The site: its ``utc_offset`` converts stamps carrying a UTC offset or civil
+        time; its position enables the check of Rg against potential radiation.
 
     Returns
     -------
     frame : pandas.DataFrame
         Columns ``nee`` [µmol m-2 s-1], ``rg`` [W m-2], ``tair`` [°C], ``vpd`` [hPa],
-        ``ustar`` [m s-1] and, where read, ``tsoil`` [°C], ``rh`` [%], ``nee_flag`` [1],
-        all float64 with NaN for missing values; index: tz-naive DatetimeIndex named
-        ``"time"`` of interval starts with a regular frequency, stamps absent from the
-        file inserted as all-NaN rows.
+        ``ustar`` [m s-1] and, where read, ``tsoil`` [°C], ``rh`` [%], ``nee_flag``
+        [1] (0 = kept by the site's flags, 1 = rejected), all float64 with NaN for
+        missing values; index: tz-naive DatetimeIndex named ``"time"`` of interval
+        starts with a regular frequency, stamps absent from the files inserted as
+        all-NaN rows.
     report : ReadReport
         What was found and done.
 
     Raises
     ------
     InputFileError
-        The file is missing, unreadable, empty or has a duplicated mapped header.
+        A file is missing, unreadable (with an encoding hint), empty, has a
+        duplicated mapped header or a cell that is not a number.
     ConfigError
-        A bad setting: unknown canonical name, a column mapped twice, bad
-        `time_marks`, `missing`, `delimiter` or `interval_minutes`.
+        A bad setting.
     MissingColumnError
         A required or mapped column is absent; the message lists the file's columns.
     TimestampError
-        A stamp does not parse with `time_format` (first bad row named), or stamps
-        carry a UTC offset.
+        A stamp does not parse (file and line named), or a civil stamp does not
+        exist in `time_zone`.
     DuplicateTimestampError, NonMonotonicTimestampError
-        A stamp repeats, or stamps go backwards (rows named).
+        A stamp repeats with different values (within a file or across files: both
+        named with their lines), or stamps go backwards within a file.
     SpacingError
         Spacing is not 30/60 minutes or not a whole multiple of the interval.
     UnitError
         A declared unit is unknown for its variable.
     ImplausibleValueError
-        A variable is mostly implausible (see :data:`IMPLAUSIBLE_SHARE`), or a
-        column is in an undeclared unit that the values give away; the message
-        suggests the unit that would fit.
+        A variable is mostly implausible, or its values give away a unit mix-up
+        (see :mod:`fluxpart.unit_checks`); the message says which setting fixes it.
 
     Notes
     -----
-    Plausibility: a variable stops the reader (ImplausibleValueError) when its
-    median lies outside the plausible range of
-    :data:`fluxpart.variables.VARIABLES`, or more than :data:`IMPLAUSIBLE_SHARE`
-    (5 %) of its present values and at least 5 of them do, or when relative
-    humidity read as percent never exceeds 1.05 over at least 48 records (no
-    surface air stays that dry: it is a fraction). Fewer outliers are counted in
-    the report and left to screening. Values that are plausible but fit a unit
-    mix-up only warn: VPD read as hPa that stays below 6 (median below 1.5) while
-    never exceeding a tenth of the saturation vapour pressure at ``tair`` (kPa?),
-    and NEE whose 99th percentile of ``|NEE|`` is below 1 µmol m-2 s-1
-    (mg CO2 m-2 s-1?). Both need at least 48 records.
+    *Several files* are read one by one (each with the same settings), then joined
+    and sorted by time. A row identical (same stamp, same value in every column
+    read) to an earlier row of the same file is dropped and counted as a
+    duplicate; one identical to a row of another file is dropped and counted as
+    merged. Rows with the same stamp but different values are an error naming both
+    files and lines.
 
-    Row numbers in messages are given twice: the 1-based data row (blank lines not
-    counted) and the line of the file (the header is line 1). Interval starts are
-    ``stamp - interval`` for end stamps and ``stamp - interval / 2`` for middle
-    stamps, so start-, middle- and end-stamped copies of a record give identical
-    frames.
+    *Site flags*: each flag column keeps a record where its value is in
+    `flag_accept`; the canonical ``nee_flag`` is 0 where every flag present keeps
+    the record, 1 where any rejects it, NaN where none is present.
+
+    *Storage*: the storage flux is added to the turbulent flux mapped as ``nee``.
+    A record with a turbulent flux but no storage value gets a missing NEE (and is
+    gap-filled): adding storage in some records and not in others would bias the
+    night and morning sums, where storage is largest. The count is reported.
+
+    *PPFD*: when ``ppfd`` is mapped and ``rg`` is not, ``rg = ppfd / PPFD_PER_RG``
+    (:data:`fluxpart.variables.PPFD_PER_RG`, 2.10 µmol J-1).
+
+    Row numbers in messages are lines of the file (the first line is line 1).
+    Interval starts are ``stamp - interval`` for end stamps and ``stamp -
+    interval / 2`` for middle stamps.
     """
-    path = Path(path)
-    units = dict(units or {})
+    paths = _as_paths(path)
+    columns, flag_columns = _split_flag_columns(columns)
     columns = _string_table(columns, "[input.columns]")
-    units = _string_table(units, "[input.units]")
-    _check_mapping(columns, units)
+    units = _string_table(dict(units or {}), "[input.units]")
+    _check_mapping(columns, units, flag_columns)
+    time_columns = _check_time_column(time_column)
     time_marks = _check_time_marks(time_marks)
     missing = _check_missing(missing)
     delimiter = _check_delimiter(delimiter)
+    decimal = _check_decimal(decimal, delimiter)
+    encoding = _check_encoding(encoding)
+    rows_before_header = _check_rows(rows_before_header, "rows_before_header")
+    rows_after_header = _check_rows(rows_after_header, "rows_after_header")
     interval_minutes = _check_interval(interval_minutes)
-    if not isinstance(time_column, str) or not time_column:
-        raise ConfigError(f"[input] time_column = {time_column!r}: expected a column name")
+    flag_accept = _check_flag_accept(flag_accept)
+    accept_units = _check_accept_units(accept_units)
     if not isinstance(time_format, str) or not time_format:
         raise ConfigError(f"[input] time_format = {time_format!r}: expected a format string "
                           "such as '%Y-%m-%d %H:%M'")
+    utc_offset = None if site is None else site.utc_offset
+    if time_zone is not None:
+        if site is None:
+            raise ConfigError("[input] time_zone needs the site (its [site] utc_offset)")
+        check_time_zone(time_zone, utc_offset)
 
-    raw, lines, header = _read_raw(path, delimiter)
-    mapping = _resolve_columns(columns, units, list(raw.columns), header, time_column, path)
     warnings: list[str] = []
+    parts, mapping = [], None
+    for path_ in paths:
+        part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
+                          time_columns=time_columns, time_format=time_format,
+                          missing=missing, delimiter=delimiter, decimal=decimal,
+                          encoding=encoding, rows_before_header=rows_before_header,
+                          rows_after_header=rows_after_header, time_zone=time_zone,
+                          utc_offset=utc_offset, warnings=warnings)
+        found = (part["mapping"], part["flag_columns"])
+        if mapping is not None and found != (mapping, flag_columns):
+            raise InputFileError(f"{str(path_)!r} maps columns differently from "
+                                 f"{str(paths[0])!r} ({_describe_mapping(*found)} vs "
+                                 f"{_describe_mapping(mapping, flag_columns)}); give every file "
+                                 "the same columns or map them explicitly in [input.columns]")
+        mapping, flag_columns = found
+        parts.append(part)
+    combined = _combine(parts)
 
-    stamps = _parse_stamps(raw[time_column], time_format, time_column, lines)
-    _check_order(stamps, raw[time_column], lines)
-    interval_minutes = _interval(stamps, interval_minutes, lines, raw[time_column])
+    stamps = combined["stamps"]
+    interval_minutes = infer_interval(
+        stamps, interval_minutes,
+        lambda position: f"line {combined['lines'][position]} of "
+                         f"{combined['sources'][position]!r}")
     shift_minutes = {"start": 0.0, "middle": interval_minutes / 2,
                      "end": float(interval_minutes)}[time_marks]
     starts = pd.DatetimeIndex(stamps) - pd.Timedelta(minutes=shift_minutes)
-    _check_clock_alignment(starts, interval_minutes, time_marks, warnings)
+    alignment = clock_alignment_warning(starts, interval_minutes, time_marks)
+    if alignment:
+        warnings.append(alignment)
 
-    values: dict[str, np.ndarray] = {}
-    missing_cells: dict[str, int] = {}
-    for name, column in mapping.items():
-        numbers, n_missing = _numbers(raw[column], column, name, missing, lines, warnings)
-        missing_cells[name] = n_missing
-        values[name] = numbers
-    converted = {name: to_canonical(numbers, name, units.get(name))
-                 for name, numbers in values.items()}
+    values = combined["values"]
+    converted = {name: to_canonical(values[name], name, units.get(name),
+                                    interval_minutes=interval_minutes)
+                 for name in mapping}
+    accepted = []
     for name in converted:
-        _check_plausible(name, converted[name], values[name], units.get(name), mapping[name],
-                         missing)
-    _suspect_units(converted, units, warnings)
+        message = implausible_message(name, converted[name], values[name], units.get(name),
+                                      mapping[name], missing)
+        if message:
+            accepted.append(_refuse_or_warn(name, message, accept_units, warnings))
+    potential = _potential(starts, site, interval_minutes)
+    refusals, suspicions = mixup_messages(converted, units, mapping, interval_minutes, potential)
+    warnings.extend(suspicions)
+    for name, message in refusals.items():
+        accepted.append(_refuse_or_warn(name, message, accept_units, warnings))
 
     derived: list[str] = []
     source_of = dict(mapping)
+    storage_missing = 0
+    if "storage" in converted:
+        turbulent, storage = converted["nee"], converted.pop("storage")
+        lacking = np.isfinite(turbulent) & ~np.isfinite(storage)
+        storage_missing = int(lacking.sum())
+        converted["nee"] = turbulent + storage
+        source_of["nee"] = f"{mapping['nee']} + {mapping['storage']} (storage)"
+        if storage_missing:
+            warnings.append(f"storage: {storage_missing} record(s) have a turbulent flux in "
+                            f"{mapping['nee']!r} but no storage value in {mapping['storage']!r};"
+                            " their NEE is missing and will be gap-filled")
+    if "ppfd" in converted:
+        ppfd = converted.pop("ppfd")
+        if "rg" not in converted:
+            converted["rg"] = ppfd / PPFD_PER_RG
+            derived.append("rg")
+            source_of["rg"] = f"{mapping['ppfd']} (ppfd / {PPFD_PER_RG:.2f} µmol J-1)"
+        else:
+            warnings.append("ppfd: mapped together with rg; rg is used and ppfd ignored")
+    flag_rejected = 0
+    if flag_columns:
+        flags = [combined["values"][_flag_key(column)] for column in flag_columns]
+        converted["nee_flag"] = _combine_flags(flags, flag_accept)
+        flag_rejected = int(np.nansum(converted["nee_flag"]))
+        source_of["nee_flag"] = " + ".join(flag_columns)
     if "vpd" not in converted:
         converted["vpd"] = vpd_from_rh(converted["rh"], converted["tair"])
         derived.append("vpd")
@@ -495,31 +729,31 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     inserted = full.difference(starts)
     frame = frame.reindex(full)
     frame.index.name = "time"
-    ranges, runs = _runs(inserted, interval_minutes)
+    ranges, runs = inserted_runs(inserted, interval_minutes)
     if len(full) and len(inserted) > 0.25 * len(full):
         warnings.append(f"{len(inserted)} of {len(full)} stamps ({len(inserted) / len(full):.0%}) "
                         "are absent from the file and were inserted as missing; check "
                         "interval_minutes and whether the file changes its interval")
-
     for name in mapping:
-        if not np.isfinite(converted[name]).any():
+        if name in converted and not np.isfinite(values[name]).any():
             warnings.append(f"{name}: column {mapping[name]!r} has no values at all "
                             "(every cell empty or a missing code)")
     outside = {}
     for name in order:
         variable = VARIABLES[name]
         column = frame[name].to_numpy()
-        outside[name] = int(np.sum((column < variable.minimum) | (column > variable.maximum)))
+        with np.errstate(invalid="ignore"):
+            outside[name] = int(np.sum((column < variable.minimum) | (column > variable.maximum)))
         if outside[name]:
             warnings.append(f"{name}: {outside[name]} value(s) outside the plausible range "
                             f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; "
                             "screening will reject them")
     report = ReadReport(
-        source=str(path),
+        source=", ".join(str(p) for p in paths),
         interval_minutes=interval_minutes,
         time_marks=time_marks,
         shift_minutes=shift_minutes,
-        records_read=len(raw),
+        records_read=combined["records_read"],
         records=len(frame),
         first_start=full[0] if len(full) else None,
         last_start=full[-1] if len(full) else None,
@@ -527,12 +761,24 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         inserted_ranges=ranges,
         inserted_runs=runs,
         columns={name: source_of[name] for name in order},
-        units={name: units[name] for name in order if name in units},
+        units={name: units[name] for name in list(order) + ["storage", "ppfd"]
+               if name in units},
         missing_codes=missing,
         derived=tuple(derived),
-        missing_cells={name: missing_cells.get(name, 0) for name in order if name in mapping},
+        missing_cells={name: combined["missing_cells"][name] for name in mapping},
         outside_range=outside,
         warnings=tuple(warnings),
+        files=tuple(str(p) for p in paths),
+        encodings=tuple(part["encoding"] for part in parts),
+        duplicate_rows=combined["duplicate_rows"],
+        merged_rows=combined["merged_rows"],
+        stamp_conversions=combined["conversions"] | (
+            {"time_zone": time_zone} if time_zone else {}),
+        nonfinite_cells={name: combined["nonfinite_cells"][name] for name in mapping},
+        flag_accept=flag_accept,
+        flag_rejected=flag_rejected,
+        storage_missing=storage_missing,
+        accepted_units=tuple(sorted(set(name for name in accepted if name))),
     )
     return frame, report
 
@@ -548,8 +794,10 @@ _SITE_HELP = {
                   "(no daylight saving), e.g. utc_offset = 1.0",
 }
 _INPUT_HELP = {
-    "path": "give the record file, relative to the site config, e.g. path = \"tower.csv\"",
-    "time_column": "name the column holding the stamps, e.g. time_column = \"timestamp\"",
+    "path": "give the record file, relative to the site config, e.g. path = \"tower.csv\" "
+            "(or a list, or a glob such as \"tower_*.csv\")",
+    "time_column": "name the column holding the stamps, e.g. time_column = \"timestamp\" "
+                   "(or [\"date\", \"time\"])",
     "time_format": "give the stamp format, e.g. time_format = \"%Y-%m-%d %H:%M\"",
     "time_marks": "say where the stamps sit in their averaging interval: "
                   "time_marks = \"start\", \"middle\" or \"end\"",
@@ -564,30 +812,102 @@ def _check_keys(table: dict, valid, where: str, spell: str) -> None:
             raise ConfigError(f"{where} {spell.format(key=key)} is unknown{hint}")
 
 
+def _resolve_paths(value, folder: Path) -> tuple:
+    """``[input] path`` (a file, a list or a glob) -> existing files, relative to `folder`."""
+    items = value if isinstance(value, list) else [value]
+    if not items:
+        raise ConfigError("[input] path = []: give at least one file")
+    found: list[Path] = []
+    for item in items:
+        if not isinstance(item, str) or not item.strip():
+            raise ConfigError(f"[input] path = {value!r}: expected a file path (a string, "
+                              "relative to the site config), a list of them or a glob")
+        if _GLOB_CHARACTERS & set(item):
+            pattern = item if Path(item).is_absolute() else str(folder / item)
+            matches = sorted(Path(p) for p in glob.glob(pattern) if Path(p).is_file())
+            if not matches:
+                raise ConfigError(f"[input] path = {item!r} matches no file in "
+                                  f"{str(Path(pattern).parent)!r}")
+            found.extend(matches)
+        else:
+            found.append(folder / item)
+    repeated = [p for i, p in enumerate(found) if p in found[:i]]
+    if repeated:
+        raise ConfigError(f"[input] path names {str(repeated[0])!r} more than once")
+    return tuple(found)
+
+
+def _as_paths(path) -> list:
+    if isinstance(path, (list, tuple)):
+        if not path:
+            raise ConfigError("[input] path: no file given")
+        return [Path(p) for p in path]
+    return [Path(path)]
+
+
+def _check_time_column(value) -> tuple:
+    items = value if isinstance(value, (list, tuple)) else [value]
+    if not items or any(not isinstance(item, str) or not item for item in items):
+        raise ConfigError(f"[input] time_column = {value!r}: expected a column name, or a "
+                          "list of columns joined with one space (e.g. [\"date\", \"time\"])")
+    if len(set(items)) != len(items):
+        raise ConfigError(f"[input] time_column = {value!r} names a column twice")
+    return tuple(items)
+
+
+def _split_flag_columns(columns) -> tuple[dict, tuple]:
+    """Take ``nee_flag`` (one column or a list) out of the column mapping."""
+    if not isinstance(columns, dict):
+        raise ConfigError(f"[input.columns] must be a table of name = \"text\", found {columns!r}")
+    columns = dict(columns)
+    flags = columns.pop("nee_flag", None)
+    if flags is None:
+        return columns, ()
+    items = flags if isinstance(flags, (list, tuple)) else [flags]
+    if not items or any(not isinstance(item, str) or not item for item in items):
+        raise ConfigError(f"[input.columns] nee_flag = {flags!r}: expected a column name or a "
+                          "list of flag columns")
+    if len(set(items)) != len(items):
+        raise ConfigError(f"[input.columns] nee_flag = {flags!r} names a column twice")
+    return columns, tuple(items)
+
+
 def _string_table(table, where: str) -> dict:
     if not isinstance(table, dict):
         raise ConfigError(f"{where} must be a table of name = \"text\", found {table!r}")
     out = {}
     for key, value in table.items():
-        if key not in VARIABLES:
+        if key not in READER_VARIABLES:
             raise ConfigError(f"{where} {key} is not a canonical variable"
-                              f"{suggest_key(key, VARIABLES)} (valid: {', '.join(VARIABLES)})")
+                              f"{suggest_key(key, READER_VARIABLES)} (valid: "
+                              f"{', '.join(READER_VARIABLES)})")
+        if key == "nee_flag" and where == "[input.columns]" and isinstance(value, list):
+            out[key] = value
+            continue
         if not isinstance(value, str) or not value:
             raise ConfigError(f"{where} {key} = {value!r}: expected a non-empty string")
         out[key] = value
     return out
 
 
-def _check_mapping(columns: dict, units: dict) -> None:
+def _check_mapping(columns: dict, units: dict, flag_columns: tuple = ()) -> None:
+    columns = dict(columns)
+    flags = columns.pop("nee_flag", None)
+    if flags is not None:
+        flag_columns = tuple(flags) if isinstance(flags, list) else (flags,)
     seen: dict[str, str] = {}
-    for name, column in columns.items():
+    pairs = list(columns.items()) + [("nee_flag", column) for column in flag_columns]
+    for name, column in pairs:
         if column in seen:
             raise ConfigError(f"[input.columns] file column {column!r} is mapped twice, to "
                               f"{seen[column]} and to {name}; each canonical variable needs "
                               "its own column")
         seen[column] = name
+    if "storage" in columns and "nee" not in columns:
+        raise ConfigError("[input.columns] storage is mapped but nee is not; map the turbulent "
+                          "CO2 flux as nee (storage is added to it)")
     for name, unit in units.items():
-        to_canonical(np.empty(0), name, unit)  # raises UnitError listing the accepted units
+        to_canonical(np.empty(0), name, unit, interval_minutes=30)  # UnitError lists units
 
 
 def _check_time_marks(value) -> str:
@@ -612,9 +932,41 @@ def _check_missing(value) -> tuple:
 
 
 def _check_delimiter(value) -> str:
+    if value == _WHITESPACE:
+        return value
     if not isinstance(value, str) or len(value) != 1:
         raise ConfigError(f"[input] delimiter = {value!r}: expected a single character such "
-                          "as \",\", \";\" or \"\\t\"")
+                          "as \",\", \";\" or \"\\t\", or \"whitespace\"")
+    return value
+
+
+def _check_decimal(value, delimiter: str) -> str:
+    if value not in (".", ","):
+        raise ConfigError(f"[input] decimal = {value!r}: expected \".\" or \",\"")
+    if value == delimiter:
+        raise ConfigError(f"[input] decimal = {value!r} is also the delimiter; a file with "
+                          "decimal commas separates fields by another character: set "
+                          "[input] delimiter = \";\" (or \"\\t\")")
+    return value
+
+
+def _check_encoding(value):
+    if value is None:
+        return None
+    if not isinstance(value, str) or not value:
+        raise ConfigError(f"[input] encoding = {value!r}: expected an encoding name such as "
+                          "\"latin-1\" or \"utf-16\"")
+    try:
+        codecs.lookup(value)
+    except LookupError:
+        raise ConfigError(f"[input] encoding = {value!r} is not a known text encoding; use "
+                          "e.g. \"utf-8\", \"latin-1\", \"cp1252\" or \"utf-16\"") from None
+    return value
+
+
+def _check_rows(value, name: str) -> int:
+    if isinstance(value, bool) or not isinstance(value, int) or value < 0:
+        raise ConfigError(f"[input] {name} = {value!r}: expected a whole number of lines >= 0")
     return value
 
 
@@ -628,30 +980,105 @@ def _check_interval(value):
     return int(value)
 
 
-# --------------------------------------------------------------------------- file
+def _check_flag_accept(value) -> tuple:
+    if isinstance(value, (int, float)) and not isinstance(value, bool):
+        value = [value]
+    if (not isinstance(value, (list, tuple)) or not value
+            or any(isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v)
+                   for v in value)):
+        raise ConfigError(f"[input] flag_accept = {value!r}: expected a list of the flag "
+                          "values that keep a record, e.g. flag_accept = [0, 1]")
+    return tuple(value)
 
 
-def _read_raw(path: Path, delimiter: str) -> tuple[pd.DataFrame, np.ndarray, list]:
-    """Read every cell as text; return the non-blank rows, their line numbers, the header."""
+def _check_accept_units(value) -> tuple:
+    if not isinstance(value, (list, tuple)) or any(
+            not isinstance(v, str) or v not in READER_VARIABLES for v in value):
+        raise ConfigError(f"[input] accept_units = {value!r}: expected a list of canonical "
+                          f"variables ({', '.join(READER_VARIABLES)}) whose values are kept as "
+                          "declared although they look like a unit mix-up")
+    return tuple(value)
+
+
+def _refuse_or_warn(name: str, message: str, accept_units: tuple, warnings: list):
+    if name in accept_units:
+        warnings.append(message.split("; ")[0] + f"; kept as declared ([input] accept_units "
+                        f"lists {name})")
+        return name
+    raise ImplausibleValueError(message)
+
+
+# --------------------------------------------------------------------------- files
+
+
+def _file_sha256(path: Path) -> str:
+    digest = hashlib.sha256()
+    with open(path, "rb") as handle:
+        for block in iter(lambda: handle.read(1 << 20), b""):
+            digest.update(block)
+    return digest.hexdigest()
+
+
+def _decode(path: Path, encoding) -> tuple[str, str]:
+    """Return the file's text and the encoding used (detected if `encoding` is None)."""
     if not path.exists():
         raise InputFileError(f"[input] path: input file {str(path)!r} does not exist")
     if not path.is_file():
         raise InputFileError(f"[input] path: {str(path)!r} is not a file")
-    options = {"sep": delimiter, "dtype": str, "keep_default_na": False, "na_filter": False,
-               "encoding": "utf-8-sig"}
     try:
-        raw = pd.read_csv(path, skip_blank_lines=False, **options)
-        header = pd.read_csv(path, header=None, nrows=1, **options).iloc[0].tolist()
+        data = path.read_bytes()
+    except OSError as error:
+        raise InputFileError(f"input file {str(path)!r} cannot be read: {error}") from None
+    if encoding is None:
+        if data.startswith(codecs.BOM_UTF8):
+            encoding = "utf-8-sig"
+        elif data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
+            encoding = "utf-16"
+        elif len(data) >= 4 and data[1] == 0 and data[3] == 0 and data[0] != 0:
+            encoding = "utf-16-le"
+        elif len(data) >= 4 and data[0] == 0 and data[2] == 0 and data[1] != 0:
+            encoding = "utf-16-be"
+        else:
+            encoding = "utf-8"
+    try:
+        text = data.decode(encoding)
+    except UnicodeDecodeError as error:
+        line = data[:error.start].count(b"\n") + 1
+        raise InputFileError(
+            f"input file {str(path)!r} is not {encoding} text (byte 0x{data[error.start]:02x} "
+            f"on line {line}); set [input] encoding = \"latin-1\" (or \"cp1252\", or "
+            "\"utf-16\") to the encoding it was written in") from None
+    if text.startswith("\ufeff"):
+        text = text[1:]
+    return text, ("utf-8" if encoding == "utf-8-sig" else encoding)
+
+
+def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
+               rows_after_header: int) -> tuple[pd.DataFrame, np.ndarray, list]:
+    """Every cell as text; return the non-blank rows, their line numbers, the header."""
+    skipped = set(range(rows_before_header)) | set(
+        range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
+    options = {"dtype": str, "keep_default_na": False, "na_filter": False}
+    if delimiter == _WHITESPACE:
+        options["sep"] = r"\s+"
+    else:
+        options["sep"] = delimiter
+    try:
+        raw = pd.read_csv(_io.StringIO(text), skip_blank_lines=False,
+                          skiprows=lambda line: line in skipped, **options)
+        header = pd.read_csv(_io.StringIO(text), header=None, nrows=1,
+                             skiprows=rows_before_header, **options).iloc[0].tolist()
     except pd.errors.EmptyDataError:
         raise InputFileError(f"input file {str(path)!r} is empty; expected a header line "
-                             "and records") from None
+                             "and records" + (f" after {rows_before_header} line(s) "
+                                              "(rows_before_header)"
+                                              if rows_before_header else "")) from None
     except pd.errors.ParserError as error:
         raise InputFileError(f"input file {str(path)!r} cannot be parsed with delimiter "
-                             f"{delimiter!r}: {error}") from None
-    except (OSError, UnicodeDecodeError) as error:
-        raise InputFileError(f"input file {str(path)!r} cannot be read: {error}") from None
-    blank = (raw.apply(lambda column: column.str.strip()) == "").all(axis=1).to_numpy()
-    lines = np.arange(len(raw)) + 2
+                             f"{delimiter!r}: {str(error).strip()}") from None
+    blank = (raw.apply(lambda column: column.str.strip()) == "").all(axis=1).to_numpy() \
+        if raw.shape[1] else np.ones(len(raw), dtype=bool)
+    lines = np.arange(len(raw)) + rows_before_header + rows_after_header + 2
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
     if raw.empty:
@@ -659,32 +1086,144 @@ def _read_raw(path: Path, delimiter: str) -> tuple[pd.DataFrame, np.ndarray, lis
     return raw, lines, [str(h) for h in header]
 
 
+def _flag_key(column: str) -> str:
+    return f"nee_flag:{column}"
+
+
+def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_format, missing,
+               delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
+               utc_offset, warnings) -> dict:
+    """Read one file: its stamps in local standard time and the numbers of each column."""
+    text, used_encoding = _decode(path, encoding)
+    raw, lines, header = _read_text(path, text, delimiter, rows_before_header,
+                                    rows_after_header)
+    mapping, flag_columns = _resolve_columns(columns, units, list(raw.columns), header,
+                                             time_columns, flag_columns, path)
+    source = str(path)
+    stamp_text = join_time_columns(raw, time_columns)
+    parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
+                          lines=lines, utc_offset=utc_offset, time_zone=time_zone)
+    values, missing_cells, nonfinite = {}, {}, {}
+    read = dict(mapping) | {_flag_key(column): column for column in flag_columns}
+    for name, column in read.items():
+        numbers, n_missing, absurd = _numbers(raw[column], column, name, missing, decimal,
+                                              source, lines)
+        values[name], missing_cells[name], nonfinite[name] = numbers, n_missing, int(absurd.sum())
+        if absurd.any():
+            warnings.append(f"column {column!r} ({name.split(':')[0]}): {int(absurd.sum())} "
+                            f"infinite or absurd value(s) (magnitude {ABSURD_MAGNITUDE:g} or "
+                            "more) read as missing, first on line "
+                            f"{int(lines[np.flatnonzero(absurd)[0]])} of {source!r}")
+
+    # exact duplicate rows: same stamp and same value in every column read
+    table = pd.DataFrame(values)
+    table.insert(0, "__stamp__", parsed.stamps)
+    duplicate = table.duplicated(keep="first").to_numpy()
+    keep = ~duplicate
+    stamps = parsed.stamps[keep]
+    check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
+                time_zone=time_zone)
+    return {
+        "source": source, "encoding": used_encoding, "mapping": mapping,
+        "flag_columns": flag_columns,
+        "stamps": stamps, "lines": lines[keep],
+        "values": {name: column[keep] for name, column in values.items()},
+        "records_read": len(raw), "duplicate_rows": int(duplicate.sum()),
+        "missing_cells": missing_cells, "nonfinite_cells": nonfinite,
+        "conversions": {"hour_24": parsed.hour_24, "utc_offset": parsed.offset_converted,
+                        "daylight_saving": parsed.daylight_saving},
+    }
+
+
+def _combine(parts: list) -> dict:
+    """Join the files' rows in time order; merge identical rows, refuse conflicting ones."""
+    names = list(parts[0]["values"])
+    stamps = np.concatenate([part["stamps"].to_numpy() for part in parts])
+    lines = np.concatenate([part["lines"] for part in parts])
+    sources = np.array([part["source"] for part in parts for _ in range(len(part["stamps"]))],
+                       dtype=object)
+    values = {name: np.concatenate([part["values"][name] for part in parts]) for name in names}
+    order = np.argsort(stamps, kind="stable")
+    stamps, lines, sources = stamps[order], lines[order], sources[order]
+    values = {name: column[order] for name, column in values.items()}
+    merged = 0
+    if len(parts) > 1:
+        table = pd.DataFrame(values)
+        table.insert(0, "__stamp__", stamps)
+        identical = table.duplicated(keep="first").to_numpy()
+        merged = int(identical.sum())
+        keep = ~identical
+        stamps, lines, sources = stamps[keep], lines[keep], sources[keep]
+        values = {name: column[keep] for name, column in values.items()}
+        repeated = pd.Index(stamps).duplicated(keep=False)
+        if repeated.any():
+            first = np.flatnonzero(repeated)[:2]
+            a, b = int(first[0]), int(first[1])
+            differing = [name for name in names
+                         if not (values[name][a] == values[name][b]
+                                 or (np.isnan(values[name][a]) and np.isnan(values[name][b])))]
+            raise DuplicateTimestampError(
+                f"overlapping files disagree: stamp {pd.Timestamp(stamps[a])} is on line "
+                f"{int(lines[a])} of {sources[a]!r} and on line {int(lines[b])} of "
+                f"{sources[b]!r} with different values ({', '.join(differing)}); "
+                f"{int(pd.Index(stamps).duplicated().sum())} such stamp(s) in all: remove one "
+                "copy of the overlap from a file")
+    conversions: dict = {}
+    for part in parts:
+        for key, count in part["conversions"].items():
+            conversions[key] = conversions.get(key, 0) + count
+    return {
+        "stamps": pd.DatetimeIndex(stamps), "lines": lines, "sources": sources,
+        "values": values, "merged_rows": merged,
+        "records_read": sum(part["records_read"] for part in parts),
+        "duplicate_rows": sum(part["duplicate_rows"] for part in parts),
+        "missing_cells": {name: sum(part["missing_cells"][name] for part in parts)
+                          for name in names},
+        "nonfinite_cells": {name: sum(part["nonfinite_cells"][name] for part in parts)
+                            for name in names},
+        "conversions": {key: count for key, count in conversions.items() if count},
+    }
+
+
 def _resolve_columns(columns: dict, units: dict, file_columns: list, header: list,
-                     time_column: str, path: Path) -> dict:
-    """Canonical name -> file column, in canonical order; check presence and duplicates."""
-    if time_column not in file_columns:
-        raise MissingColumnError(f"[input] time_column = {time_column!r}: no such column in "
-                                 f"{str(path)!r}{_near(time_column, file_columns)}; "
-                                 f"{_columns_listing(file_columns)}")
+                     time_columns: tuple, flag_columns: tuple, path: Path) -> tuple[dict, tuple]:
+    """Canonical name -> file column in canonical order, and the flag columns; check them."""
+    for time_column in time_columns:
+        if time_column not in file_columns:
+            raise MissingColumnError(f"[input] time_column = {time_column!r}: no such column in "
+                                     f"{str(path)!r}{_near(time_column, file_columns)}; "
+                                     f"{_columns_listing(file_columns)}")
+    for column in flag_columns:
+        if column not in file_columns:
+            raise MissingColumnError(f"[input.columns] nee_flag = {column!r}: no such column in "
+                                     f"{str(path)!r}{_near(column, file_columns)}; "
+                                     f"{_columns_listing(file_columns)}")
     mapping = {}
     for name, column in columns.items():
         if column not in file_columns:
             raise MissingColumnError(f"[input.columns] {name} = {column!r}: no such column in "
                                      f"{str(path)!r}{_near(column, file_columns)}; "
                                      f"{_columns_listing(file_columns)}")
-        if column == time_column:
-            raise ConfigError(f"[input.columns] {name} = {column!r} is the time column")
+        if column in time_columns:
+            raise ConfigError(f"[input.columns] {name} = {column!r} is a time column")
         mapping[name] = column
-    used = set(mapping.values()) | {time_column}
+    used = set(mapping.values()) | set(time_columns) | set(flag_columns)
     for name in VARIABLES:
+        if name == "nee_flag" and (flag_columns or name in used):
+            continue
         if name not in mapping and name in file_columns and name not in used:
             mapping[name] = name
+    if "nee_flag" in mapping:  # a column named nee_flag is read as the site flag
+        flag_columns = (mapping.pop("nee_flag"),)
     needed = [name for name in REQUIRED if name != "vpd"]
     if "vpd" not in mapping and "rh" not in mapping:
         needed.append("vpd")
     for name in needed:
+        if name == "rg" and "ppfd" in mapping:
+            continue
         if name not in mapping:
             also = " (or map rh, from which vpd is derived with tair)" if name == "vpd" else ""
+            also = " (or map ppfd, from which rg is derived)" if name == "rg" else also
             raise MissingColumnError(f"[input.columns] {name} is not mapped and {str(path)!r} "
                                      f"has no column {name!r}; add {name} = \"<column>\"{also}; "
                                      f"{_columns_listing(file_columns)}")
@@ -694,11 +1233,17 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
                               "column is read; map it in [input.columns] or remove the unit")
     # pandas renames repeated headers 'x', 'x.1', ...; a mapped name must be unambiguous
     duplicated = {h for h in header if header.count(h) > 1}
-    for name, column in list(mapping.items()) + [("time", time_column)]:
+    for name, column in list(mapping.items()) + [("time", c) for c in time_columns] + [
+            ("nee_flag", c) for c in flag_columns]:
         if column in duplicated:
             raise InputFileError(f"column {column!r} (for {name}) appears more than once in the "
                                  f"header of {str(path)!r}; rename the copies")
-    return {name: mapping[name] for name in VARIABLES if name in mapping}
+    return {name: mapping[name] for name in READER_VARIABLES if name in mapping}, flag_columns
+
+
+def _describe_mapping(mapping: dict, flag_columns: tuple) -> str:
+    pairs = list(mapping.items()) + [("nee_flag", column) for column in flag_columns]
+    return ", ".join(f"{name} <- {column}" for name, column in pairs)
 
 
 def _near(name: str, options: list) -> str:
@@ -720,117 +1265,12 @@ def _columns_listing(file_columns: list) -> str:
     return listing
 
 
-def _where(lines: np.ndarray, position: int) -> str:
-    return f"data row {position + 1} (line {int(lines[position])} of the file)"
-
-
-# --------------------------------------------------------------------------- time
-
-
-def _parse_stamps(text: pd.Series, time_format: str, time_column: str,
-                  lines: np.ndarray) -> pd.DatetimeIndex:
-    cleaned = text.str.strip()
-    try:
-        stamps = pd.to_datetime(cleaned, format=time_format, errors="coerce")
-    except (ValueError, TypeError) as error:
-        raise TimestampError(f"[input] time_format = {time_format!r} cannot be used: "
-                             f"{error}") from None
-    bad = stamps.isna().to_numpy()
-    if bad.any():
-        first = int(np.flatnonzero(bad)[0])
-        hint = ""
-        if "24:00" in cleaned.iloc[first] or cleaned.iloc[first].endswith("2400"):
-            hint = ("; hour 24 is not a valid clock time: stamp midnight as 00:00 of the "
-                    "next day")
-        elif first == 0:
-            hint = "; if the file has a units line under the header, remove it from a copy"
-        raise TimestampError(
-            f"[input] time_column {time_column!r}: {_where(lines, first)} has stamp "
-            f"{cleaned.iloc[first]!r}, which does not match time_format = {time_format!r}; "
-            f"{int(bad.sum())} stamp(s) fail to parse{hint}")
-    index = pd.DatetimeIndex(stamps)
-    if index.tz is not None:
-        raise TimestampError(f"[input] time_column {time_column!r}: stamps carry a UTC offset "
-                             f"({index[0]}); fluxpart expects local standard time without "
-                             "offset; give the site's offset as [site] utc_offset")
-    return index
-
-
-def _check_order(stamps: pd.DatetimeIndex, text: pd.Series, lines: np.ndarray) -> None:
-    duplicated = stamps.duplicated(keep=False)
-    if duplicated.any():
-        first = int(np.flatnonzero(duplicated)[0])
-        rows = np.flatnonzero(stamps == stamps[first])
-        listed = ", ".join(_where(lines, int(r)) for r in rows[:5])
-        raise DuplicateTimestampError(
-            f"stamp {text.iloc[first].strip()!r} occurs {len(rows)} times: {listed}; "
-            f"{int(stamps.duplicated().sum())} repeated stamp(s) in all. A repeated hour "
-            "often means daylight-saving time: fluxpart expects local standard time")
-    steps = (stamps[1:] - stamps[:-1]) / pd.Timedelta(seconds=1)
-    backwards = np.flatnonzero(np.asarray(steps) < 0)
-    if backwards.size:
-        row = int(backwards[0]) + 1
-        raise NonMonotonicTimestampError(
-            f"stamps go backwards at {_where(lines, row)}: {text.iloc[row].strip()!r} comes "
-            f"after {text.iloc[row - 1].strip()!r}; sort a copy of the file by time")
-
-
-def _interval(stamps: pd.DatetimeIndex, declared, lines: np.ndarray, text: pd.Series) -> int:
-    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(minutes=1), dtype=float)
-    if declared is None:
-        if steps.size == 0:
-            raise SpacingError("the file has a single record, so its interval cannot be "
-                               "inferred; set [input] interval_minutes = 30 or 60")
-        found, counts = np.unique(steps, return_counts=True)
-        typical = float(found[np.argmax(counts)])
-        if typical not in INTERVALS_MINUTES:
-            share = counts.max() / steps.size
-            raise SpacingError(f"the most common spacing between stamps is {typical:g} minutes "
-                               f"({share:.0%} of steps); fluxpart needs 30- or 60-minute "
-                               "records: average the file to 30 or 60 minutes first")
-        declared = int(typical)
-    irregular = np.flatnonzero(np.abs(steps / declared - np.round(steps / declared)) > 1e-9)
-    if irregular.size:
-        row = int(irregular[0]) + 1
-        found = sorted({f"{s:g}" for s in steps[irregular][:10]})
-        raise SpacingError(
-            f"stamps are {steps[irregular[0]]:g} minutes apart at {_where(lines, row)} "
-            f"({text.iloc[row - 1].strip()!r} -> {text.iloc[row].strip()!r}), not a whole "
-            f"multiple of the {declared}-minute interval; {irregular.size} such step(s), "
-            f"spacings found: {', '.join(found)} minutes")
-    return declared
-
-
-def _check_clock_alignment(starts: pd.DatetimeIndex, interval_minutes: int, time_marks: str,
-                           warnings: list) -> None:
-    midnight = starts.normalize()
-    offset = np.asarray((starts - midnight) / pd.Timedelta(minutes=1), dtype=float)
-    off_grid = np.mod(offset, interval_minutes) != 0
-    if off_grid.any():
-        minute = offset[np.flatnonzero(off_grid)[0]] % 60
-        warnings.append(f"interval starts fall at minute {minute:g} of the hour, not on the "
-                        f"{interval_minutes}-minute clock grid; check [input] time_marks = "
-                        f"{time_marks!r}")
-
-
-def _runs(inserted: pd.DatetimeIndex, interval_minutes: int) -> tuple[tuple, int]:
-    if len(inserted) == 0:
-        return (), 0
-    steps = np.asarray((inserted[1:] - inserted[:-1]) / pd.Timedelta(minutes=interval_minutes))
-    breaks = np.flatnonzero(steps != 1)
-    starts = np.concatenate([[0], breaks + 1])
-    ends = np.concatenate([breaks, [len(inserted) - 1]])
-    ranges = tuple((inserted[s], inserted[e], int(e - s + 1))
-                   for s, e in zip(starts[:_RANGES_SHOWN], ends[:_RANGES_SHOWN], strict=True))
-    return ranges, len(starts)
-
-
 # --------------------------------------------------------------------------- values
 
 
-def _numbers(text: pd.Series, column: str, name: str, missing: tuple, lines: np.ndarray,
-             warnings: list) -> tuple[np.ndarray, int]:
-    """Parse a text column to float with missing codes as NaN; return values, missing count."""
+def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: str,
+             source: str, lines: np.ndarray) -> tuple[np.ndarray, int, np.ndarray]:
+    """Parse a text column to float; return values, missing-code count, non-finite mask."""
     cleaned = text.str.strip()
     folded = cleaned.str.casefold()
     string_codes = {str(c).strip().casefold() for c in missing if isinstance(c, str)}
@@ -838,134 +1278,70 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, lines: np.
     for code in missing:
         if isinstance(code, str):
             try:
-                numeric_codes.append(float(code))
+                numeric_codes.append(float(code.replace(",", ".") if decimal == "," else code))
             except ValueError:
                 pass
     is_code = folded.isin(string_codes).to_numpy() | (cleaned == "").to_numpy() \
         | folded.isin(_FLOAT_SPELLINGS_OF_NAN).to_numpy()
-    numbers = pd.to_numeric(cleaned.where(~is_code, None), errors="coerce").to_numpy(
-        dtype=float, na_value=np.nan)
+    numeric_text = cleaned.str.replace(",", ".", regex=False) if decimal == "," else cleaned
+    with np.errstate(over="ignore", invalid="ignore"):
+        numbers = pd.to_numeric(numeric_text.where(~is_code, None), errors="coerce").to_numpy(
+            dtype=float, na_value=np.nan)
     bad = np.isnan(numbers) & ~is_code
     if bad.any():
         first = int(np.flatnonzero(bad)[0])
         cell = cleaned.iloc[first]
-        hint = ""
-        if "," in cell and pd.notna(pd.to_numeric(cell.replace(",", "."), errors="coerce")):
-            hint = "; it looks like a decimal comma: convert a copy of the file to decimal points"
+        if decimal == "." and "," in cell and pd.notna(
+                pd.to_numeric(cell.replace(",", "."), errors="coerce")):
+            hint = ("; it looks like a decimal comma: set [input] decimal = \",\" (and the "
+                    "delimiter, e.g. delimiter = \";\")")
         else:
             hint = f"; if {cell!r} marks missing data, add it to [input] missing"
-        raise InputFileError(f"column {column!r} ({name}): {_where(lines, first)} has "
-                             f"{cell!r}, which is not a number; {int(bad.sum())} such cell(s)"
-                             f"{hint}")
+        raise InputFileError(f"column {column!r} ({name.split(':')[0]}): line "
+                             f"{int(lines[first])} of {source!r} has {cell!r}, which is not a "
+                             f"number; {int(bad.sum())} such cell(s){hint}")
     for code in numeric_codes:
         tolerance = 1e-6 * max(1.0, abs(code))
-        is_code = is_code | (np.abs(numbers - code) <= tolerance)
-    infinite = np.isinf(numbers) & ~is_code
-    if infinite.any():
-        warnings.append(f"column {column!r} ({name}): {int(infinite.sum())} infinite value(s) "
-                        f"read as missing, first at {_where(lines, int(np.flatnonzero(infinite)[0]))}")
-        is_code = is_code | infinite
-    numbers = np.where(is_code, np.nan, numbers)
-    return numbers, int(is_code.sum())
+        with np.errstate(invalid="ignore", over="ignore"):
+            is_code = is_code | (np.abs(numbers - code) <= tolerance)
+    with np.errstate(invalid="ignore"):
+        absurd = ~is_code & (np.isinf(numbers) | (np.abs(numbers) >= ABSURD_MAGNITUDE))
+    numbers = np.where(is_code | absurd, np.nan, numbers)
+    return numbers, int(is_code.sum()), absurd
 
 
-def _outside(name: str, values: np.ndarray) -> np.ndarray:
-    variable = VARIABLES[name]
-    return (values < variable.minimum) | (values > variable.maximum)
+def _combine_flags(flags: list, flag_accept: tuple) -> np.ndarray:
+    """Canonical site flag: 0 where every present flag keeps the record, 1 where any rejects."""
+    accept = np.asarray(flag_accept, dtype=float)
+    stacked = np.vstack(flags)
+    present = np.isfinite(stacked)
+    rejects = present & ~np.isin(stacked, accept)
+    out = np.where(rejects.any(axis=0), 1.0, 0.0)
+    return np.where(present.any(axis=0), out, np.nan)
 
 
-def _check_plausible(name: str, canonical: np.ndarray, file_values: np.ndarray, unit,
-                     column: str, missing: tuple) -> None:
-    """Raise ImplausibleValueError for a mostly implausible column, with a likely cause."""
-    variable = VARIABLES[name]
-    if not (math.isfinite(variable.minimum) or math.isfinite(variable.maximum)):
-        return
-    present = canonical[np.isfinite(canonical)]
-    if present.size == 0:
-        return
-    outside = _outside(name, present)
-    median = float(np.median(present))
-    share = outside.mean()
-    median_outside = bool(_outside(name, np.array([median]))[0])
-    fraction_rh = name == "rh" and unit in (None, "%") and present.size >= 48 \
-        and np.nanmax(present) <= 1.05
-    mostly_outside = share > IMPLAUSIBLE_SHARE and outside.sum() >= _IMPLAUSIBLE_MIN_COUNT
-    if not (median_outside or mostly_outside or fraction_rh):
-        return
-    declared = unit if unit is not None else variable.unit
-    message = (f"column {column!r} ({name}, read as {declared!r}): {int(outside.sum())} of "
-               f"{present.size} present values ({share:.1%}) lie outside the plausible range "
-               f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; median "
-               f"{median:.4g} {variable.unit}")
-    if fraction_rh:
-        message = (f"column {column!r} (rh, read as '%'): all {present.size} values are at "
-                   f"most {np.nanmax(present):.3g} %, which no surface air stays below; it looks "
-                   "like a fraction: set [input.units] rh = \"fraction\"")
-        raise ImplausibleValueError(message)
-    raw_present = file_values[np.isfinite(file_values)]
-    outside_raw = raw_present[_outside(name, to_canonical(raw_present, name, unit))]
-    codes, counts = np.unique(outside_raw, return_counts=True)
-    code = codes[np.argmax(counts)] if counts.size else np.nan
-    # a missing-data code explains the problem when all else is plausible without it
-    rest = present[raw_present != code]
-    if counts.size and counts.max() >= 3 and (
-            rest.size == 0 or _outside(name, rest).mean() <= IMPLAUSIBLE_SHARE):
-        message += (f"; the value {code:g} alone occurs {counts.max()} times: if it marks "
-                    f"missing data, add it to [input] missing (now {list(missing)})")
-    else:
-        better = _better_units(name, raw_present, unit)
-        if better:
-            message += (f"; the values look like {better[0]!r}: set [input.units] {name} = "
-                        f"\"{better[0]}\"")
-        else:
-            message += ("; check the column mapping and [input.units]; if these are "
-                        "instrument faults, mark them with a missing code (or the site flag) "
-                        "in a copy of the file")
-    raise ImplausibleValueError(message)
+def _potential(starts: pd.DatetimeIndex, site, interval_minutes: int):
+    """Potential radiation per record [W m-2], or None without a site."""
+    if site is None:
+        return None
+    from .solar import potential_radiation
+
+    return potential_radiation(starts, site.latitude, site.longitude, site.utc_offset,
+                               interval_minutes=interval_minutes)
 
 
-def _better_units(name: str, raw_present: np.ndarray, declared) -> list:
-    """Accepted units (other than `declared`) under which the values are plausible, best first."""
-    probe = np.array([1.0, 2.0])
-    declared_probe = to_canonical(probe, name, declared)
-    candidates, seen = [], []
-    for unit in units_for(name):
-        converted_probe = to_canonical(probe, name, unit)
-        if np.allclose(converted_probe, declared_probe) or any(
-                np.allclose(converted_probe, other) for other in seen):
-            continue
-        seen.append(converted_probe)
-        values = to_canonical(raw_present, name, unit)
-        if _outside(name, values).mean() <= 0.01 and not _outside(
-                name, np.array([np.median(values)]))[0]:
-            scale = max(float(np.percentile(np.abs(values), 90)), 1e-12)
-            low, high = _TYPICAL_P90[name]
-            distance = max(math.log10(low / scale), math.log10(scale / high), 0.0)
-            candidates.append((distance, unit))
-    return [unit for _, unit in sorted(candidates)]
-
-
-def _suspect_units(converted: dict, units: dict, warnings: list) -> None:
-    """Warn about plausible-looking values that a wrong unit would also explain."""
-    vpd, tair = converted.get("vpd"), converted.get("tair")
-    if vpd is not None and tair is not None and units.get("vpd") in (None, "hPa"):
-        both = np.isfinite(vpd) & np.isfinite(tair)
-        if both.sum() >= 48:
-            ratio = vpd[both] / saturation_vapour_pressure(tair[both])
-            if (np.nanmax(vpd[both]) < 6.0 and np.median(vpd[both]) < 1.5
-                    and np.percentile(ratio, 99) < 0.1):
-                warnings.append(
-                    "vpd: read as hPa, but all values are below 6 and never exceed a tenth of "
-                    "the saturation vapour pressure at tair (relative humidity would never drop "
-                    "below 90 %); if the file is in kPa, set [input.units] vpd = \"kPa\"")
-    nee = converted.get("nee")
-    if nee is not None and units.get("nee") in (None, "µmol m-2 s-1", "umol m-2 s-1"):
-        present = np.abs(nee[np.isfinite(nee)])
-        if present.size >= 48 and np.percentile(present, 99) < 1.0:
-            warnings.append(
-                "nee: read as µmol m-2 s-1, but 99 % of |values| are below 1; a half-hourly "
-                "flux record is rarely that small: if the file is in mg CO2 m-2 s-1, set "
-                "[input.units] nee = \"mg CO2 m-2 s-1\"")
+def _conversion_text(conversions: dict) -> str:
+    parts = []
+    if conversions.get("hour_24"):
+        parts.append(f"{conversions['hour_24']} hour-24 stamp(s) read as next midnight")
+    if conversions.get("utc_offset"):
+        parts.append(f"{conversions['utc_offset']} stamp(s) with a UTC offset to local "
+                     "standard time")
+    if conversions.get("time_zone"):
+        parts.append(f"civil time of {conversions['time_zone']}: "
+                     f"{conversions.get('daylight_saving', 0)} daylight-saving stamp(s) moved "
+                     "back one hour")
+    return "; ".join(parts)
 
 
 def _stamp(value) -> str:

@@ -16,6 +16,9 @@ from .constants import CO2_MOLAR_MASS, KELVIN_OFFSET
 from .errors import UnitError
 
 __all__ = [
+    "PER_INTERVAL_UNITS",
+    "PPFD_PER_RG",
+    "READER_VARIABLES",
     "REQUIRED",
     "VARIABLES",
     "Variable",
@@ -78,20 +81,52 @@ VARIABLES: dict[str, Variable] = {
 #: Names a site file must provide (``vpd`` or else ``rh``).
 REQUIRED = tuple(name for name, v in VARIABLES.items() if v.required)
 
+#: Variables a site file may map that the reader turns into canonical ones and
+#: leaves out of the frame: ``storage`` is added to the turbulent flux mapped as
+#: ``nee``; ``ppfd`` becomes ``rg`` (divided by :data:`PPFD_PER_RG`) when no ``rg``
+#: is mapped. Ranges: storage is a fraction of the flux (our choice, ±50);
+#: PPFD at the surface stays below about 2,500 µmol m-2 s-1 (common practice).
+READER_VARIABLES: dict[str, Variable] = {
+    **VARIABLES,
+    "storage": Variable("storage", "µmol m-2 s-1",
+                        "CO2 storage flux below the flux measurement height; positive = "
+                        "CO2 accumulating in the air below", -50.0, 50.0, False),
+    "ppfd": Variable("ppfd", "µmol m-2 s-1",
+                     "incoming photosynthetic photon flux density (400-700 nm)",
+                     -20.0, 3000.0, False),
+}
+
+#: Photosynthetic photons per joule of global radiation [µmol J-1]: about 46 % of the
+#: energy of global radiation lies in 400-700 nm (Britton & Dodd 1976 give 0.45-0.50
+#: (m)) and daylight PAR carries 4.57 µmol J-1 (McCree 1972, Agric. Meteorol.
+#: 10:443-453 (m)); 0.46 x 4.57 = 2.10. Measured ratios range from about 1.9 to 2.3
+#: with cloud and season (Meek et al. 1984, Agron. J. 76:939-945 (m)), so Rg derived
+#: from PPFD carries an error of roughly ±10 %.
+PPFD_PER_RG = 0.46 * 4.57
+
 # unit spelling -> (scale, offset) such that canonical = value * scale + offset
 _TEMPERATURE = {"°C": (1.0, 0.0), "degC": (1.0, 0.0), "C": (1.0, 0.0),
                 "K": (1.0, -KELVIN_OFFSET), "kelvin": (1.0, -KELVIN_OFFSET)}
 _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
     "nee": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),
             "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0)},
-    "rg": {"W m-2": (1.0, 0.0), "W/m2": (1.0, 0.0)},
+    "rg": {"W m-2": (1.0, 0.0), "W/m2": (1.0, 0.0), "kW m-2": (1000.0, 0.0),
+           "MJ m-2": (1e6, 0.0)},
     "tair": _TEMPERATURE,
     "tsoil": _TEMPERATURE,
     "vpd": {"hPa": (1.0, 0.0), "mbar": (1.0, 0.0), "kPa": (10.0, 0.0), "Pa": (0.01, 0.0)},
     "ustar": {"m s-1": (1.0, 0.0), "m/s": (1.0, 0.0)},
     "rh": {"%": (1.0, 0.0), "fraction": (100.0, 0.0), "1": (100.0, 0.0)},
     "nee_flag": {"1": (1.0, 0.0)},
+    "storage": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),
+                "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0)},
+    "ppfd": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0)},
 }
+
+#: Units of an amount per record interval rather than a rate: (variable, unit) whose
+#: scale is divided by the interval in seconds (``"MJ m-2"`` of Rg = energy received
+#: per record interval).
+PER_INTERVAL_UNITS = frozenset({("rg", "MJ m-2")})
 
 
 def units_for(name: str) -> tuple[str, ...]:
@@ -99,7 +134,8 @@ def units_for(name: str) -> tuple[str, ...]:
     return tuple(_CONVERSIONS[name])
 
 
-def to_canonical(values, name: str, unit: str | None = None) -> np.ndarray:
+def to_canonical(values, name: str, unit: str | None = None, *,
+                 interval_minutes: float | None = None) -> np.ndarray:
     """Convert `values` of variable `name` from `unit` to its canonical unit.
 
     Parameters
@@ -110,6 +146,9 @@ def to_canonical(values, name: str, unit: str | None = None) -> np.ndarray:
         Canonical variable name, a key of :data:`VARIABLES`.
     unit : str, optional
         Unit of `values`; ``None`` means the canonical unit already.
+    interval_minutes : float, optional
+        Record interval [minutes]; needed for an amount per interval
+        (:data:`PER_INTERVAL_UNITS`, e.g. Rg in ``"MJ m-2"``).
 
     Returns
     -------
@@ -120,6 +159,7 @@ def to_canonical(values, name: str, unit: str | None = None) -> np.ndarray:
     ------
     UnitError
         If `unit` is not known for `name`; the message lists the accepted units.
+        If `unit` is an amount per interval and `interval_minutes` is not given.
 
     Examples
     --------
@@ -137,7 +177,13 @@ def to_canonical(values, name: str, unit: str | None = None) -> np.ndarray:
         raise UnitError(f"[input.units] {name} = {unit!r} is not a known unit for {name}; "
                         f"use one of: {', '.join(repr(u) for u in table)}")
     scale, offset = table[unit]
-    return values * scale + offset
+    if (name, unit) in PER_INTERVAL_UNITS:
+        if interval_minutes is None:
+            raise UnitError(f"[input.units] {name} = {unit!r} is an amount per record "
+                            "interval; the record interval is needed to convert it")
+        scale = scale / (float(interval_minutes) * 60.0)
+    with np.errstate(over="ignore", invalid="ignore"):
+        return values * scale + offset
 
 
 def saturation_vapour_pressure(tair):

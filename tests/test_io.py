@@ -268,7 +268,8 @@ def test_optional_columns_and_canonical_names_found(tmp_path):
     frame, report = _read(_write(tmp_path / "t.csv", records), columns=mapping)
     assert list(frame.columns) == ["nee", "rg", "tair", "vpd", "ustar", "tsoil", "nee_flag"]
     assert report.columns["ustar"] == "ustar"
-    np.testing.assert_array_equal(frame["nee_flag"], records["qc"].astype(float))
+    # the canonical flag: 0 = kept (value in flag_accept, default [0]), 1 = rejected
+    np.testing.assert_array_equal(frame["nee_flag"], (records["qc"] != 0).astype(float))
 
 
 def test_semicolon_delimiter(tmp_path):
@@ -305,7 +306,7 @@ def test_blank_lines_do_not_shift_line_numbers(tmp_path):
     lines.insert(3, "")
     lines[5] = lines[5].replace("2021-06-01", "2021-13-01", 1)
     path.write_text("\n".join(lines) + "\n\n")
-    with pytest.raises(TimestampError, match=r"data row 4 \(line 6 of the file\)"):
+    with pytest.raises(TimestampError, match=r"line 6 of '.*t.csv'"):
         _read(path)
     lines[5] = lines[5].replace("2021-13-01", "2021-06-01", 1)
     path.write_text("\n".join(lines) + "\n\n")
@@ -480,18 +481,22 @@ def test_unparsable_timestamp_names_row(tmp_path):
     text[3] = "2021/06/01 01:00" + text[3][16:]
     text[7] = "garbage" + text[7][16:]
     path.write_text("\n".join(text) + "\n")
-    with pytest.raises(TimestampError, match=r"data row 3 \(line 4 of the file\) has stamp "
+    with pytest.raises(TimestampError, match=r"line 4 of '.*t.csv' has stamp "
                                              r"'2021/06/01 01:00'.*'%Y-%m-%d %H:%M'; 2 stamp"):
         _read(path)
 
 
-def test_hour_24_hint(tmp_path):
-    """A stamp at hour 24 gets a hint to write midnight as 00:00."""
-    path = _write(tmp_path / "t.csv", _records(periods=4, start="2021-06-01 23:00"), marks="end")
+def test_hour_24_is_next_midnight(tmp_path):
+    """Hour 24:00 is midnight ending the day (ISO 8601 allows 24:00 as end of day)."""
+    records = _records(periods=6, start="2021-06-01 22:00")
+    path = _write(tmp_path / "t.csv", records, marks="end")
     text = path.read_text().replace("2021-06-02 00:00", "2021-06-01 24:00")
     path.write_text(text)
-    with pytest.raises(TimestampError, match="hour 24"):
-        _read(path, time_marks="end")
+    frame, report = _read(path, time_marks="end")
+    plain, _ = _read(_write(tmp_path / "plain.csv", records, marks="end"), time_marks="end")
+    pd.testing.assert_frame_equal(frame, plain)
+    assert report.stamp_conversions["hour_24"] == 1
+    assert "hour-24" in str(report)
 
 
 def test_timestamps_with_utc_offset_rejected(tmp_path):
@@ -502,15 +507,30 @@ def test_timestamps_with_utc_offset_rejected(tmp_path):
         _read(path, time_format="ISO8601")
 
 
-def test_duplicate_stamp_names_rows(tmp_path):
-    """A repeated stamp names the stamp, both rows and the daylight-saving hint."""
+def test_exact_duplicate_rows_dropped_and_counted(tmp_path):
+    """Byte-identical repeated rows (issue 13) are dropped with a count, not an error."""
+    records = _records(periods=10)
+    repeated = pd.concat([records.iloc[:5], records.iloc[[4]], records.iloc[5:],
+                          records.iloc[7:9]])
+    frame, report = _read(_write(tmp_path / "t.csv", repeated))
+    plain, _ = _read(_write(tmp_path / "plain.csv", records))
+    pd.testing.assert_frame_equal(frame, plain)
+    assert report.duplicate_rows == 3 and report.records_read == 13
+    assert "3 exact duplicate(s)" in str(report)
+
+
+def test_conflicting_duplicate_stamp_names_lines(tmp_path):
+    """A repeated stamp with different values names the stamp and both lines; no DST blame
+    in June."""
     records = _records(periods=10)
     repeated = pd.concat([records.iloc[:5], records.iloc[[4]], records.iloc[5:]])
+    repeated.iloc[5, 0] += 1.0
     path = _write(tmp_path / "t.csv", repeated)
     with pytest.raises(DuplicateTimestampError,
-                       match=r"stamp '2021-06-01 02:00' occurs 2 times: data row 5 \(line 6 "
-                             r"of the file\), data row 6 \(line 7.*daylight"):
+                       match=r"stamp '2021-06-01 02:00' occurs 2 times with different values "
+                             r"in '.*t.csv' \(lines 6, 7\)") as caught:
         _read(path)
+    assert "daylight" not in str(caught.value)
 
 
 def test_non_monotonic_names_row(tmp_path):
@@ -518,7 +538,7 @@ def test_non_monotonic_names_row(tmp_path):
     records = _records(periods=10)
     swapped = records.iloc[[0, 1, 2, 4, 3, 5, 6, 7, 8, 9]]
     with pytest.raises(NonMonotonicTimestampError,
-                       match=r"data row 5 \(line 6 of the file\): '2021-06-01 01:30' comes "
+                       match=r"line 6 of '.*t.csv': '2021-06-01 01:30' comes "
                              r"after '2021-06-01 02:00'"):
         _read(_write(tmp_path / "t.csv", swapped))
 
@@ -536,7 +556,7 @@ def test_irregular_step_rejected(tmp_path):
     index = records.index.to_series()
     index.iloc[8:] = index.iloc[8:] + pd.Timedelta(minutes=17)
     records.index = pd.DatetimeIndex(index)
-    with pytest.raises(SpacingError, match=r"47 minutes apart at data row 9 \(line 10"):
+    with pytest.raises(SpacingError, match=r"47 minutes apart at line 10 of '.*t.csv'"):
         _read(_write(tmp_path / "t.csv", records))
     with pytest.raises(SpacingError, match=r"not a whole multiple of the 60-minute"):
         _read(tmp_path / "t.csv", interval_minutes=60)
@@ -555,8 +575,8 @@ def test_non_numeric_cell_names_column_and_row(tmp_path):
     """A text cell in a data column names the column, variable, row and a fix."""
     records = _records().astype(object)
     records.iloc[6, 2] = "ERR"
-    with pytest.raises(InputFileError, match=r"column 't_air' \(tair\): data row 7 \(line 8 "
-                                             r"of the file\) has 'ERR'.*add it to \[input\] "
+    with pytest.raises(InputFileError, match=r"column 't_air' \(tair\): line 8 of "
+                                             r"'.*t.csv' has 'ERR'.*add it to \[input\] "
                                              "missing"):
         _read(_write(tmp_path / "t.csv", records))
 
@@ -569,7 +589,8 @@ def test_decimal_comma_hint(tmp_path):
     out = records.copy()
     out.insert(0, "stamp", _records().index.strftime(FORMAT))
     out.to_csv(path, index=False, sep=";")
-    with pytest.raises(InputFileError, match=r"'sw_in' \(rg\): data row 3.*decimal comma"):
+    with pytest.raises(InputFileError, match=r"'sw_in' \(rg\): line 4 .*decimal comma.*"
+                                             r"decimal = \",\""):
         _read(path, delimiter=";")
 
 
@@ -785,5 +806,266 @@ def test_units_line_under_header_hint(tmp_path):
     lines = path.read_text().splitlines()
     lines.insert(1, "yyyy-mm-dd HH:MM,umol m-2 s-1,W m-2,degC,hPa,m s-1,%,degC")
     path.write_text("\n".join(lines) + "\n")
-    with pytest.raises(TimestampError, match=r"data row 1 \(line 2 of the file\).*units line"):
+    with pytest.raises(TimestampError, match=r"line 2 of '.*t.csv'.*units line.*"
+                                             r"rows_after_header = 1"):
         _read(path)
+
+
+# ----------------------------------------------------------------------------- layouts (issue 13)
+# Each layout is written from the same invented records and must give the same canonical
+# frame as the plain file (known-truth recovery of the reader).
+
+
+def _plain(tmp_path, records, **kwargs):
+    frame, _ = _read(_write(tmp_path / "plain.csv", records), **kwargs)
+    return frame
+
+
+def test_several_files_equal_one_file(tmp_path):
+    """A list of files with an identical overlap reads as the single file; overlap merged."""
+    records = _records(periods=200)
+    first = _write(tmp_path / "a.csv", records.iloc[:120])
+    second = _write(tmp_path / "b.csv", records.iloc[100:])
+    frame, report = _read([second, first])
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
+    assert report.merged_rows == 20 and report.records_read == 220
+    assert len(report.files) == 2 and "identical in overlapping files" in str(report)
+
+
+def test_glob_and_list_in_site_config(tmp_path):
+    """[input] path as a glob or a list gives the same frame; the input hash covers all files."""
+    records = _records(periods=200)
+    _write(tmp_path / "tower_2021a.csv", records.iloc[:100], marks="end")
+    _write(tmp_path / "tower_2021b.csv", records.iloc[100:], marks="end")
+    _write(tmp_path / "tower.csv", records, marks="end")
+    plain = read_site_config(_site_toml(tmp_path))
+    globbed = read_site_config(_site_toml(tmp_path, csv="tower_2021*.csv"))
+    assert [p.name for p in globbed.input_paths] == ["tower_2021a.csv", "tower_2021b.csv"]
+    pd.testing.assert_frame_equal(globbed.read()[0], plain.read()[0])
+    listed_path = _site_toml(tmp_path)
+    listed_path.write_text(listed_path.read_text().replace(
+        'path = "tower.csv"', 'path = ["tower_2021b.csv", "tower_2021a.csv"]'))
+    listed = read_site_config(listed_path)
+    pd.testing.assert_frame_equal(listed.read()[0], plain.read()[0])
+    assert globbed.input_sha256() != plain.input_sha256() == _sha256(tmp_path / "tower.csv")
+    with pytest.raises(ConfigError, match=r"\[input\] path = 'none_\*.csv' matches no file"):
+        read_site_config(_site_toml(tmp_path, csv="none_*.csv"))
+
+
+def test_conflicting_overlap_names_both_files_and_lines(tmp_path):
+    """Overlapping files that disagree: one error naming both files and lines."""
+    records = _records(periods=100)
+    changed = records.copy()
+    changed.iloc[60, 0] += 2.0
+    first = _write(tmp_path / "a.csv", records.iloc[:70])
+    second = _write(tmp_path / "b.csv", changed.iloc[50:])
+    with pytest.raises(DuplicateTimestampError,
+                       match=r"stamp 2021-06-02 06:00:00 is on line 62 of '.*a.csv' and on line "
+                             r"12 of '.*b.csv' with different values \(nee\)"):
+        _read([first, second])
+
+
+def test_split_date_and_time_columns(tmp_path):
+    """time_column as a list: cells joined by one space before time_format applies."""
+    records = _records()
+    out = records.copy()
+    out.insert(0, "date", records.index.strftime("%d.%m.%Y"))
+    out.insert(1, "time", records.index.strftime("%H:%M"))
+    out.to_csv(tmp_path / "t.csv", index=False)
+    frame, _ = _read(tmp_path / "t.csv", time_column=["date", "time"],
+                     time_format="%d.%m.%Y %H:%M")
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
+
+
+def test_lines_before_header_and_units_line(tmp_path):
+    """rows_before_header and rows_after_header skip a title and a units line."""
+    records = _records()
+    path = _write(tmp_path / "t.csv", records)
+    lines = path.read_text().splitlines()
+    lines.insert(0, "logger 7, station Quillmoor, program v2")
+    lines.insert(2, "yyyy-mm-dd HH:MM,umol m-2 s-1,W m-2,degC,hPa,m s-1,%,degC")
+    path.write_text("\n".join(lines) + "\n")
+    frame, _ = _read(path, rows_before_header=1, rows_after_header=1)
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
+    lines[7] = lines[7].replace("2021-06-01", "2021-16-01", 1)
+    path.write_text("\n".join(lines) + "\n")
+    with pytest.raises(TimestampError, match=r"line 8 of '.*t.csv'"):
+        _read(path, rows_before_header=1, rows_after_header=1)
+
+
+def test_decimal_comma_and_semicolon(tmp_path):
+    """decimal = ',' with delimiter ';' reads the numbers of a comma-decimal export."""
+    records = _records()
+    out = records.copy()
+    out.insert(0, "stamp", records.index.strftime(FORMAT))
+    out.to_csv(tmp_path / "t.csv", index=False, sep=";", decimal=",")
+    frame, _ = _read(tmp_path / "t.csv", delimiter=";", decimal=",")
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
+    with pytest.raises(ConfigError, match=r"\[input\] decimal = ',' is also the delimiter"):
+        _read(tmp_path / "t.csv", decimal=",")
+
+
+def test_whitespace_delimiter(tmp_path):
+    """delimiter = 'whitespace' reads columns separated by runs of blanks."""
+    records = _records()
+    out = records.copy()
+    out.insert(0, "stamp", records.index.strftime("%Y-%m-%dT%H:%M"))
+    (tmp_path / "t.txt").write_text(out.to_string(index=False) + "\n")
+    frame, _ = _read(tmp_path / "t.txt", delimiter="whitespace", time_format="%Y-%m-%dT%H:%M")
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
+
+
+@pytest.mark.parametrize("utc_offset", [10.0, -5.0])
+def test_stamps_with_utc_offset_converted(tmp_path, utc_offset):
+    """Stamps carrying an offset (UTC or another zone) become local standard time."""
+    records = _records()
+    site = Site(name="x", latitude=-35.0, longitude=149.0, utc_offset=utc_offset)
+    utc = records.index - pd.Timedelta(hours=utc_offset)
+    out = records.copy()
+    # half the file in UTC ('Z'), half with a +02:00 offset: both are instants
+    text = [f"{t:%Y-%m-%dT%H:%M}Z" for t in utc[:48]] + [
+        f"{t + pd.Timedelta(hours=2):%Y-%m-%dT%H:%M}+02:00" for t in utc[48:]]
+    out.insert(0, "stamp", text)
+    out.to_csv(tmp_path / "t.csv", index=False)
+    frame, report = _read(tmp_path / "t.csv", time_format="ISO8601", site=site)
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
+    assert report.stamp_conversions["utc_offset"] == 96
+    with pytest.raises(TimestampError, match="carry a UTC offset.*utc_offset"):
+        _read(tmp_path / "t.csv", time_format="ISO8601")
+
+
+def _civil_stamps(starts, zone, utc_offset):
+    """Civil clock time in `zone` of standard-time stamps (the standard library's zoneinfo)."""
+    utc = (starts - pd.Timedelta(hours=utc_offset)).tz_localize("UTC")
+    return utc.tz_convert(zone).tz_localize(None)
+
+
+# Daylight saving rules (IANA time-zone database, shipped with the system or tzdata):
+# central Europe UTC+1, summer time from the last Sunday of March to the last Sunday of
+# October (EU Directive 2000/84/EC); New South Wales UTC+10, summer time from the first
+# Sunday of October to the first Sunday of April.
+@pytest.mark.parametrize(("zone", "utc_offset", "start", "spring", "autumn"), [
+    ("Europe/Berlin", 1.0, "2021-03-20", "2021-03-28 02:00", "2021-10-31 02:00"),
+    ("Australia/Sydney", 10.0, "2021-03-28", "2021-10-03 02:00", "2021-04-04 02:00"),
+])
+def test_daylight_saving_civil_time(tmp_path, zone, utc_offset, start, spring, autumn):
+    """Civil time with both DST changes gives the standard-time frame; the spring hour is a
+    gap, the repeated autumn hour is resolved by record order."""
+    records = _records(periods=48 * 230, start=start)
+    civil = _civil_stamps(records.index, zone, utc_offset)
+    # the civil clock skips the spring hour and repeats the autumn hour
+    assert pd.Timestamp(spring) not in civil
+    assert (civil == pd.Timestamp(autumn)).sum() == 2
+    out = records.copy()
+    out.insert(0, "stamp", civil.strftime(FORMAT))
+    out.to_csv(tmp_path / "t.csv", index=False)
+    site = Site(name="x", latitude=0.0, longitude=0.0, utc_offset=utc_offset)
+    frame, report = _read(tmp_path / "t.csv", time_zone=zone, site=site)
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
+    summer = int((civil != records.index).sum())
+    assert report.stamp_conversions["daylight_saving"] == summer > 0
+    # without time_zone the repeated hour stops the reader with the time_zone hint
+    with pytest.raises(DuplicateTimestampError, match=r"time_zone = \"Area/City\""):
+        _read(tmp_path / "t.csv")
+
+
+def test_daylight_saving_errors(tmp_path):
+    """A stamp in the skipped spring hour, an unknown zone, a zone whose standard offset
+    differs from utc_offset: each one error naming the setting."""
+    records = _records(periods=96, start="2021-03-27 12:00")
+    path = _write(tmp_path / "t.csv", records)  # standard time: 02:00 on 28 March exists
+    site = Site(name="x", latitude=50.0, longitude=10.0, utc_offset=1.0)
+    with pytest.raises(TimestampError, match=r"line \d+ of '.*t.csv' has stamp '2021-03-28 "
+                                             r"02:00', which does not exist in \[input\] "
+                                             r"time_zone = 'Europe/Berlin'"):
+        _read(path, time_zone="Europe/Berlin", site=site)
+    with pytest.raises(ConfigError, match=r"time_zone = 'Europe/Berlni' is not a known"):
+        _read(path, time_zone="Europe/Berlni", site=site)
+    with pytest.raises(ConfigError, match=r"standard time UTC\+1 but \[site\] utc_offset = 2"):
+        _read(path, time_zone="Europe/Berlin",
+              site=Site(name="x", latitude=50.0, longitude=10.0, utc_offset=2.0))
+
+
+def test_flag_accept_and_two_flag_columns(tmp_path):
+    """A 0/1/2 flag with flag_accept = [0, 1] keeps 1; a second flag column also rejects."""
+    records = _records()
+    records["qc"] = np.arange(96) % 3
+    records["qc_gas"] = np.where(np.arange(96) % 10 == 0, 4, 0)
+    records.loc[records.index[5], "qc"] = -9999
+    path = _write(tmp_path / "t.csv", records)
+    frame, report = _read(path, columns=MAPPING | {"nee_flag": "qc"}, flag_accept=[0, 1])
+    expected = (records["qc"] == 2).astype(float).where(records["qc"] != -9999)
+    np.testing.assert_array_equal(frame["nee_flag"], expected)
+    assert report.flag_rejected == 31  # 32 twos, one of them replaced by a missing code
+    frame, report = _read(path, columns=MAPPING | {"nee_flag": ["qc", "qc_gas"]},
+                          flag_accept=[0, 1])
+    expected = ((records["qc"] == 2) | (records["qc_gas"] == 4)).astype(float)
+    np.testing.assert_array_equal(frame["nee_flag"], expected)
+    assert report.columns["nee_flag"] == "qc + qc_gas"
+    with pytest.raises(ConfigError, match=r"\[input\] flag_accept = \['good'\]"):
+        _read(path, columns=MAPPING | {"nee_flag": "qc"}, flag_accept=["good"])
+
+
+def test_storage_added_to_turbulent_flux(tmp_path):
+    """NEE = turbulent flux + storage; a record without storage gets a missing NEE."""
+    records = _records()
+    storage = np.round(np.sin(np.arange(96) / 7.0), 3)
+    twin = records.copy()
+    twin["co2_flux"] = records["co2_flux"] + storage
+    records["co2_turb"] = records.pop("co2_flux")
+    records["sc"] = storage
+    records.loc[records.index[10], "sc"] = -9999
+    frame, report = _read(_write(tmp_path / "t.csv", records),
+                          columns=MAPPING | {"nee": "co2_turb", "storage": "sc"})
+    expected = _plain(tmp_path, twin)
+    expected.loc[expected.index[10], "nee"] = np.nan
+    pd.testing.assert_frame_equal(frame, expected, atol=1e-9)
+    assert report.storage_missing == 1 and "storage" not in frame.columns
+    assert report.columns["nee"] == "co2_turb + sc (storage)"
+
+
+def test_ppfd_converted_to_rg(tmp_path):
+    """PPFD mapped without rg: rg = ppfd / 2.10 µmol J-1 (0.46 x 4.57, McCree 1972 (m))."""
+    records = _records()
+    twin = records.copy()
+    records["par"] = records.pop("sw_in") * 2.1022
+    mapping = {k: v for k, v in MAPPING.items() if k != "rg"} | {"ppfd": "par"}
+    frame, report = _read(_write(tmp_path / "t.csv", records), columns=mapping)
+    np.testing.assert_allclose(frame["rg"], _plain(tmp_path, twin)["rg"], rtol=1e-9)
+    assert "rg" in report.derived and "ppfd" not in frame.columns
+
+
+@pytest.mark.parametrize("encoding", ["utf-16", "utf-16-le", "utf-8-sig", "latin-1"])
+def test_encodings(tmp_path, encoding):
+    """UTF-16 (with or without byte-order mark) and UTF-8 with BOM are detected; Latin-1
+    needs [input] encoding and gets a one-line hint without it."""
+    records = _records()
+    records = records.rename(columns={"t_air": "t_air °C"})
+    out = records.copy()
+    out.insert(0, "stamp", records.index.strftime(FORMAT))
+    out.to_csv(tmp_path / "t.csv", index=False, encoding=encoding)
+    mapping = MAPPING | {"tair": "t_air °C"}
+    if encoding == "latin-1":
+        with pytest.raises(InputFileError, match=r"not utf-8 text \(byte 0xb0 on line 1\); set "
+                                                 r"\[input\] encoding = \"latin-1\""):
+            _read(tmp_path / "t.csv", columns=mapping)
+        frame, report = _read(tmp_path / "t.csv", columns=mapping, encoding="latin-1")
+    else:
+        frame, report = _read(tmp_path / "t.csv", columns=mapping)
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, _records()))
+    assert report.encodings[0].startswith(encoding.split("-sig")[0][:6])
+
+
+def test_nonfinite_and_absurd_values_read_as_missing(tmp_path, recwarn):
+    """inf, the largest float and 1e38 are missing with a count, never kept; no NumPy
+    warning (issue 12)."""
+    records = _records().astype(object)
+    records.iloc[3, 3] = "1.8e308"
+    records.iloc[4, 3] = "inf"
+    records.iloc[5, 1] = "-1e38"
+    frame, report = _read(_write(tmp_path / "t.csv", records))
+    assert np.isnan(frame["vpd"].iloc[[3, 4]]).all() and np.isnan(frame["rg"].iloc[5])
+    assert np.isfinite(frame.drop(columns=[]).to_numpy()[~np.isnan(frame.to_numpy())]).all()
+    assert report.nonfinite_cells == {"nee": 0, "rg": 1, "tair": 0, "vpd": 2, "ustar": 0}
+    assert "non-finite        rg: 1, vpd: 2" in str(report)
+    assert not [w for w in recwarn if issubclass(w.category, RuntimeWarning)]

@@ -1,0 +1,388 @@
+"""Turn the stamp text of tower files into interval starts in local standard time.
+
+Pure functions used by :mod:`fluxpart.io`: parse stamps (one column or several
+joined by one space, hour ``24:00``, stamps carrying a UTC offset, civil time
+with daylight saving in a named zone), check their order, infer the record
+interval and list runs of inserted stamps. Each problem raises a
+:class:`~fluxpart.errors.FluxpartError` subclass naming the setting, the file and
+the line.
+
+Time convention of the result (DESIGN.md §3): tz-naive stamps in the site's
+local standard time (UTC + ``utc_offset``, no daylight saving).
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+from datetime import timedelta
+
+import numpy as np
+import pandas as pd
+
+from .errors import (
+    ConfigError,
+    DuplicateTimestampError,
+    NonMonotonicTimestampError,
+    SpacingError,
+    TimestampError,
+)
+
+__all__ = [
+    "INTERVALS_MINUTES",
+    "ParsedStamps",
+    "check_order",
+    "check_time_zone",
+    "clock_alignment_warning",
+    "infer_interval",
+    "inserted_runs",
+    "join_time_columns",
+    "parse_stamps",
+]
+
+#: Record intervals fluxpart accepts [minutes].
+INTERVALS_MINUTES = (30, 60)
+
+_RANGES_SHOWN = 5
+_OFFSET_AT_END = re.compile(r"(?:Z|[+-]\d{2}:?\d{2})$")
+_HOUR_24 = (
+    (re.compile(r"(?<!\d)24:00(:00)?(?!\d)"), lambda m: "00:00" + (m[1] or "")),
+    (re.compile(r"(?<!\d)24(00)$"), lambda m: "00" + m[1]),
+    (re.compile(r"(?<=T)24(?!\d)"), lambda m: "00"),
+    (re.compile(r"(?<!\d)24h00(?!\d)"), lambda m: "00h00"),
+)
+
+
+@dataclass(frozen=True)
+class ParsedStamps:
+    """Stamps of one file in local standard time, and what it took to get them.
+
+    Attributes
+    ----------
+    stamps : pandas.DatetimeIndex
+        tz-naive stamps in the site's local standard time, in file order (stamps as
+        written, before the shift to interval starts).
+    hour_24 : int
+        Stamps written with hour 24 and read as midnight of the next day.
+    offset_converted : int
+        Stamps that carried a UTC offset and were converted.
+    daylight_saving : int
+        Stamps read as daylight-saving civil time and moved back to standard time.
+    """
+
+    stamps: pd.DatetimeIndex
+    hour_24: int = 0
+    offset_converted: int = 0
+    daylight_saving: int = 0
+
+
+def join_time_columns(raw: pd.DataFrame, time_columns: tuple) -> pd.Series:
+    """Return the stamp text: the time columns' cells joined by one space, stripped."""
+    text = raw[time_columns[0]].astype(str).str.strip()
+    for column in time_columns[1:]:
+        text = text + " " + raw[column].astype(str).str.strip()
+    return text
+
+
+def _where(source: str, lines: np.ndarray, position: int) -> str:
+    return f"line {int(lines[position])} of {source!r}"
+
+
+def _time_setting(time_columns: tuple) -> str:
+    if len(time_columns) == 1:
+        return f"[input] time_column {time_columns[0]!r}"
+    return f"[input] time_column {list(time_columns)!r} (joined with one space)"
+
+
+def _to_datetime(text: pd.Series, time_format: str, utc: bool) -> pd.Series:
+    try:
+        return pd.to_datetime(text, format=time_format, errors="coerce", utc=utc)
+    except (ValueError, TypeError) as error:
+        raise TimestampError(f"[input] time_format = {time_format!r} cannot be used: "
+                             f"{error}") from None
+
+
+def _carries_offset(text: pd.Series, time_format: str) -> bool:
+    if "%z" in time_format or "%Z" in time_format:
+        return True
+    if time_format.upper() == "ISO8601":
+        return bool(text.str.contains(_OFFSET_AT_END).any())
+    return False
+
+
+def _hour_24(text: pd.Series, failed: np.ndarray) -> tuple[pd.Series, np.ndarray]:
+    """Rewrite hour-24 stamps among `failed` as hour 0; return the text and a mask."""
+    rewritten = text.copy()
+    is_24 = np.zeros(len(text), dtype=bool)
+    for position in np.flatnonzero(failed):
+        cell = text.iloc[position]
+        for pattern, replace in _HOUR_24:
+            new, count = pattern.subn(replace, cell, count=1)
+            if count:
+                rewritten.iloc[position] = new
+                is_24[position] = True
+                break
+    return rewritten, is_24
+
+
+def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, source: str,
+                 lines: np.ndarray, utc_offset: float | None = None,
+                 time_zone: str | None = None) -> ParsedStamps:
+    """Parse one file's stamp text into tz-naive local standard time.
+
+    Parameters
+    ----------
+    text : pandas.Series of str
+        Stamp text per data row (see :func:`join_time_columns`).
+    time_format : str
+        :func:`datetime.datetime.strptime` format, or ``"ISO8601"``.
+    time_columns : tuple of str
+        Column(s) the text comes from (for messages).
+    source : str
+        The file (for messages).
+    lines : numpy.ndarray of int
+        Line of the file of each row (for messages).
+    utc_offset : float, optional
+        Offset of the site's local standard time from UTC [hours]; needed for
+        stamps carrying a UTC offset and for `time_zone`.
+    time_zone : str, optional
+        IANA zone (``"Area/City"``) whose civil time, with daylight saving, the
+        stamps are written in.
+
+    Returns
+    -------
+    ParsedStamps
+
+    Raises
+    ------
+    TimestampError
+        A stamp does not parse (first one named with its line), stamps carry a UTC
+        offset while a `time_zone` is also given, or a stamp falls in the hour
+        skipped when clocks go forward.
+
+    Notes
+    -----
+    Hour 24 (``24:00``, ``2400``) is midnight at the end of the day, i.e. ``00:00``
+    of the next day. Stamps carrying a UTC offset (``+02:00``, ``Z``; format
+    ``%z`` or ``"ISO8601"``) are converted to UTC and then to local standard time
+    with `utc_offset`. Civil time in `time_zone`: a repeated autumn hour is
+    resolved by record order (the first occurrence of a stamp in the file is
+    daylight-saving time, the second standard time); a stamp occurring only once in
+    the repeated hour is read as daylight-saving time. The skipped spring hour
+    holds no stamps, so it becomes a gap of inserted records.
+    """
+    with_offset = _carries_offset(text, time_format)
+    if with_offset and time_zone is not None:
+        raise TimestampError(f"{_time_setting(time_columns)}: stamps in {source!r} carry a UTC "
+                             f"offset ({text.iloc[0]!r}), so [input] time_zone = "
+                             f"{time_zone!r} is not needed: remove it")
+    parsed = _to_datetime(text, time_format, utc=with_offset)
+    failed = parsed.isna().to_numpy()
+    is_24 = np.zeros(len(text), dtype=bool)
+    if failed.any():
+        rewritten, is_24 = _hour_24(text, failed)
+        if is_24.any():
+            again = _to_datetime(rewritten[is_24], time_format, utc=with_offset)
+            parsed = parsed.copy()
+            parsed[is_24] = again + pd.Timedelta(days=1)
+            is_24 = is_24 & again.notna().reindex(parsed.index, fill_value=False).to_numpy()
+            failed = parsed.isna().to_numpy()
+    if failed.any():
+        first = int(np.flatnonzero(failed)[0])
+        hint = ""
+        if first == 0 and not any(ch.isdigit() for ch in text.iloc[0][:4]):
+            hint = ("; if the file has a units line under the header, set [input] "
+                    "rows_after_header = 1")
+        elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
+            hint = "; the stamp ends in a UTC offset: add %z to time_format"
+        raise TimestampError(
+            f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
+            f"{text.iloc[first]!r}, which does not match time_format = {time_format!r}; "
+            f"{int(failed.sum())} stamp(s) fail to parse{hint}")
+    index = pd.DatetimeIndex(parsed)
+    offset_converted = 0
+    if index.tz is not None:
+        if utc_offset is None:
+            raise TimestampError(f"{_time_setting(time_columns)}: stamps carry a UTC offset "
+                                 f"({text.iloc[0]!r}); give the site's offset as [site] "
+                                 "utc_offset to convert them to local standard time")
+        index = (index.tz_convert("UTC").tz_localize(None)
+                 + pd.Timedelta(hours=float(utc_offset)))
+        offset_converted = len(index)
+    daylight = 0
+    if time_zone is not None:
+        index, daylight = _civil_to_standard(index, text, time_zone, utc_offset, time_columns,
+                                             source, lines)
+    return ParsedStamps(stamps=pd.DatetimeIndex(index), hour_24=int(is_24.sum()),
+                        offset_converted=offset_converted, daylight_saving=daylight)
+
+
+def check_time_zone(time_zone, utc_offset: float, when=None) -> str:
+    """Check an ``[input] time_zone`` setting against ``[site] utc_offset``.
+
+    Parameters
+    ----------
+    time_zone : str
+        IANA zone name, e.g. ``"Europe/Berlin"``.
+    utc_offset : float
+        Offset of the site's local standard time from UTC [hours].
+    when : datetime-like, optional
+        A moment at which to read the zone's standard offset (default 2020-01-01).
+
+    Returns
+    -------
+    str
+        The zone name.
+
+    Raises
+    ------
+    ConfigError
+        The name is not a zone known to the system's time-zone database, or the
+        zone's standard (winter) offset differs from `utc_offset`.
+    """
+    from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+
+    if not isinstance(time_zone, str) or not time_zone:
+        raise ConfigError(f"[input] time_zone = {time_zone!r}: expected a zone name such as "
+                          "\"Europe/Berlin\" or \"Australia/Sydney\"")
+    try:
+        zone = ZoneInfo(time_zone)
+    except (ZoneInfoNotFoundError, ValueError, OSError):
+        raise ConfigError(f"[input] time_zone = {time_zone!r} is not a known time zone; use an "
+                          "\"Area/City\" name such as \"Europe/Berlin\"") from None
+    moment = pd.Timestamp(when if when is not None else "2020-01-01").to_pydatetime()
+    hours = set()
+    for month in (1, 7):
+        probe = moment.replace(month=month, day=1, hour=12, tzinfo=zone)
+        hours.add((probe.utcoffset() - probe.dst()) / timedelta(hours=1))
+    standard = min(hours)
+    if abs(standard - float(utc_offset)) > 1e-9:
+        raise ConfigError(f"[input] time_zone = {time_zone!r} has standard time UTC{standard:+g} "
+                          f"but [site] utc_offset = {float(utc_offset):g}; set utc_offset = "
+                          f"{standard:g} (the offset without daylight saving)")
+    return time_zone
+
+
+def _civil_to_standard(index: pd.DatetimeIndex, text: pd.Series, time_zone: str, utc_offset,
+                       time_columns: tuple, source: str, lines: np.ndarray):
+    """Civil (daylight-saving) stamps of `time_zone` -> local standard time."""
+    if utc_offset is None:
+        raise ConfigError("[input] time_zone needs [site] utc_offset (the zone's standard "
+                          "offset)")
+    check_time_zone(time_zone, utc_offset, index[0] if len(index) else None)
+    # record order resolves the repeated hour: first occurrence = daylight-saving time
+    occurrence = pd.Series(index).groupby(index).cumcount().to_numpy()
+    first = occurrence == 0
+    try:
+        aware = index.tz_localize(time_zone, ambiguous=first, nonexistent="raise")
+    except Exception:  # pandas raises its own error type for a nonexistent time
+        aware = index.tz_localize(time_zone, ambiguous=first, nonexistent="NaT")
+        bad = int(np.flatnonzero(aware.isna())[0])
+        raise TimestampError(
+            f"{_time_setting(time_columns)}: {_where(source, lines, bad)} has stamp "
+            f"{text.iloc[bad]!r}, which does not exist in [input] time_zone = {time_zone!r} "
+            "(the hour skipped when clocks go forward); if the file is in standard time "
+            "all year, remove time_zone") from None
+    standard = aware.tz_convert("UTC").tz_localize(None) + pd.Timedelta(hours=float(utc_offset))
+    moved = int(np.sum(np.asarray(standard != index)))
+    return standard, moved
+
+
+def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: np.ndarray,
+                time_zone: str | None = None) -> None:
+    """Raise for repeated stamps or stamps going backwards within one file.
+
+    Exact duplicate rows must have been dropped before; a repeated stamp here
+    carries different values.
+    """
+    duplicated = stamps.duplicated(keep=False)
+    if duplicated.any():
+        first = int(np.flatnonzero(duplicated)[0])
+        rows = np.flatnonzero(stamps == stamps[first])
+        listed = ", ".join(str(int(lines[r])) for r in rows[:5])
+        hint = "keep one of them in a copy of the file"
+        hours = pd.DatetimeIndex(stamps[duplicated]).floor("h").unique()
+        if time_zone is None and len(hours) <= 2 and stamps[first].month in (3, 4, 9, 10, 11):
+            hint = ("if the file is in civil time with daylight saving, set [input] "
+                    "time_zone = \"Area/City\"; otherwise " + hint)
+        raise DuplicateTimestampError(
+            f"stamp {text.iloc[first]!r} occurs {len(rows)} times with different values in "
+            f"{source!r} (lines {listed}); {int(stamps.duplicated().sum())} repeated stamp(s) "
+            f"in all; {hint}")
+    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(seconds=1))
+    backwards = np.flatnonzero(steps < 0)
+    if backwards.size:
+        row = int(backwards[0]) + 1
+        raise NonMonotonicTimestampError(
+            f"stamps go backwards at {_where(source, lines, row)}: {text.iloc[row]!r} comes "
+            f"after {text.iloc[row - 1]!r}; sort a copy of the file by time")
+
+
+def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> int:
+    """Return the record interval [minutes] of sorted, unique `stamps`.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        Sorted unique stamps.
+    declared : {30, 60}, optional
+        ``[input] interval_minutes``; inferred from the most common spacing if omitted.
+    describe : callable, optional
+        ``describe(position)`` -> text naming the file and line of stamp `position`.
+
+    Raises
+    ------
+    SpacingError
+        A single record, a most common spacing other than 30 or 60 minutes, or a
+        step that is not a whole multiple of the interval.
+    """
+    describe = describe or (lambda position: f"record {position + 1}")
+    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(minutes=1), dtype=float)
+    if declared is None:
+        if steps.size == 0:
+            raise SpacingError("the file has a single record, so its interval cannot be "
+                               "inferred; set [input] interval_minutes = 30 or 60")
+        found, counts = np.unique(steps, return_counts=True)
+        typical = float(found[np.argmax(counts)])
+        if typical not in INTERVALS_MINUTES:
+            share = counts.max() / steps.size
+            raise SpacingError(f"the most common spacing between stamps is {typical:g} minutes "
+                               f"({share:.0%} of steps); fluxpart needs 30- or 60-minute "
+                               "records: average the file to 30 or 60 minutes first")
+        declared = int(typical)
+    irregular = np.flatnonzero(np.abs(steps / declared - np.round(steps / declared)) > 1e-9)
+    if irregular.size:
+        row = int(irregular[0]) + 1
+        found = sorted({f"{s:g}" for s in steps[irregular][:10]})
+        raise SpacingError(
+            f"stamps are {steps[irregular[0]]:g} minutes apart at {describe(row)} "
+            f"({stamps[row - 1]} -> {stamps[row]}), not a whole multiple of the "
+            f"{declared}-minute interval; {irregular.size} such step(s), spacings found: "
+            f"{', '.join(found)} minutes")
+    return int(declared)
+
+
+def clock_alignment_warning(starts: pd.DatetimeIndex, interval_minutes: int,
+                            time_marks: str) -> str | None:
+    """Return a warning when interval starts are off the clock grid, else None."""
+    midnight = starts.normalize()
+    offset = np.asarray((starts - midnight) / pd.Timedelta(minutes=1), dtype=float)
+    off_grid = np.mod(offset, interval_minutes) != 0
+    if not off_grid.any():
+        return None
+    minute = offset[np.flatnonzero(off_grid)[0]] % 60
+    return (f"interval starts fall at minute {minute:g} of the hour, not on the "
+            f"{interval_minutes}-minute clock grid; check [input] time_marks = {time_marks!r}")
+
+
+def inserted_runs(inserted: pd.DatetimeIndex, interval_minutes: int) -> tuple[tuple, int]:
+    """Return the first few runs of inserted stamps (first, last, count) and the run count."""
+    if len(inserted) == 0:
+        return (), 0
+    steps = np.asarray((inserted[1:] - inserted[:-1]) / pd.Timedelta(minutes=interval_minutes))
+    breaks = np.flatnonzero(steps != 1)
+    starts = np.concatenate([[0], breaks + 1])
+    ends = np.concatenate([breaks, [len(inserted) - 1]])
+    ranges = tuple((inserted[s], inserted[e], int(e - s + 1))
+                   for s, e in zip(starts[:_RANGES_SHOWN], ends[:_RANGES_SHOWN], strict=True))
+    return ranges, len(starts)

@@ -1,0 +1,323 @@
+"""Catch unit mix-ups and implausible columns in a record file before any stage runs.
+
+Pure functions used by :mod:`fluxpart.io`. Each check looks at a whole variable
+of the record (robust statistics: medians and percentiles, or physical limits),
+so that a single bad hour never trips it, and returns a one-line message that
+names the column, what was found and the setting that fixes it. The reader
+raises :class:`~fluxpart.errors.ImplausibleValueError` with that message unless
+the variable is listed in ``[input] accept_units`` (then it only warns).
+
+Two kinds of check:
+
+* **plausibility** (:func:`implausible_message`): most of a variable, or its
+  median, lies outside the plausible range of :data:`fluxpart.variables.READER_VARIABLES`
+  (kelvin read as °C, Pa read as hPa, a missing-value code not declared, ...);
+* **mix-ups inside the plausible range** (:func:`mixup_messages`): values that
+  pass the range but that a wrong unit explains and the right unit does not:
+  NEE in mg CO2 m-2 s-1 read as µmol (factor 22.7), VPD in kPa read as hPa
+  (factor 10), RH as a fraction, Rg in kW m-2 or MJ m-2 per interval.
+
+A mix-up check only refuses where the record holds the conditions in which the
+right unit could not look like that (enough days, warm and bright records); on
+a record that cannot tell (a winter-only polar file, a week of fog) it warns.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from .variables import READER_VARIABLES, saturation_vapour_pressure, to_canonical, units_for
+
+__all__ = [
+    "IMPLAUSIBLE_SHARE",
+    "MIN_DAYS_FOR_UNIT_CHECKS",
+    "implausible_message",
+    "mixup_messages",
+]
+
+#: A variable stops the reader when more than this share of its present values lies
+#: outside the plausible range of :data:`fluxpart.variables.READER_VARIABLES` (and at least
+#: 5 values do), or when its median does. Our choice: isolated outliers (spikes, a
+#: bad hour) stay far below 5 % and are left to screening; a unit or mapping mistake
+#: affects most of the record.
+IMPLAUSIBLE_SHARE = 0.05
+
+#: Days of present values a mix-up check needs before it refuses [days]; our choice:
+#: a week holds several diurnal cycles, so a percentile describes the site, not a
+#: spell of weather.
+MIN_DAYS_FOR_UNIT_CHECKS = 7
+
+_IMPLAUSIBLE_MIN_COUNT = 5
+# Records in "warm and bright" conditions a mix-up check needs (our choice: half a
+# day of half-hours, so that one odd afternoon cannot decide).
+_MIN_ACTIVE_RECORDS = 24
+# Usual band of the 90th percentile of |value| over a record, in the canonical unit,
+# used only to rank alternative units when several would make a column plausible
+# (our choice, common practice).
+_TYPICAL_P90 = {"nee": (1.0, 50.0), "rg": (100.0, 1200.0), "tair": (5.0, 45.0),
+                "tsoil": (5.0, 45.0), "vpd": (2.0, 50.0), "ustar": (0.1, 2.0),
+                "rh": (30.0, 100.0), "storage": (0.5, 20.0), "ppfd": (200.0, 2500.0)}
+
+
+def _outside(name: str, values: np.ndarray) -> np.ndarray:
+    variable = READER_VARIABLES[name]
+    return (values < variable.minimum) | (values > variable.maximum)
+
+
+def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarray, unit,
+                        column: str, missing: tuple) -> str | None:
+    """Message for a mostly implausible column, with its likely cause; None if plausible.
+
+    Parameters
+    ----------
+    name : str
+        Canonical variable (a key of :data:`fluxpart.variables.READER_VARIABLES`).
+    canonical : numpy.ndarray
+        Values converted to the canonical unit (NaN = missing).
+    file_values : numpy.ndarray
+        The same values as written in the file.
+    unit : str or None
+        Declared unit (None = canonical).
+    column : str
+        File column (for the message).
+    missing : tuple
+        Missing-value codes in force (for the message).
+
+    Notes
+    -----
+    A column is implausible when its median, or more than
+    :data:`IMPLAUSIBLE_SHARE` of its present values (and at least 5), lie outside the
+    plausible range, or when relative humidity read as percent never exceeds 1.05
+    over at least 48 records (no surface air stays that dry: it is a fraction).
+    """
+    variable = READER_VARIABLES.get(name)
+    if variable is None or not (math.isfinite(variable.minimum)
+                                or math.isfinite(variable.maximum)):
+        return None
+    present = canonical[np.isfinite(canonical)]
+    if present.size == 0:
+        return None
+    outside = _outside(name, present)
+    median = float(np.median(present))
+    share = outside.mean()
+    median_outside = bool(_outside(name, np.array([median]))[0])
+    fraction_rh = name == "rh" and unit in (None, "%") and present.size >= 48 \
+        and np.max(present) <= 1.05
+    mostly_outside = share > IMPLAUSIBLE_SHARE and outside.sum() >= _IMPLAUSIBLE_MIN_COUNT
+    if fraction_rh:
+        return (f"column {column!r} (rh, read as '%'): all {present.size} values are at most "
+                f"{np.max(present):.3g} %, which no surface air stays below; it looks like a "
+                "fraction: set [input.units] rh = \"fraction\"")
+    if not (median_outside or mostly_outside):
+        return None
+    declared = unit if unit is not None else variable.unit
+    message = (f"column {column!r} ({name}, read as {declared!r}): {int(outside.sum())} of "
+               f"{present.size} present values ({share:.1%}) lie outside the plausible range "
+               f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; median "
+               f"{median:.4g} {variable.unit}")
+    raw_present = file_values[np.isfinite(file_values)]
+    outside_raw = raw_present[_outside(name, to_canonical(raw_present, name, unit))]
+    codes, counts = np.unique(outside_raw, return_counts=True)
+    code = codes[np.argmax(counts)] if counts.size else np.nan
+    # a missing-data code explains the problem when all else is plausible without it
+    rest = present[raw_present != code]
+    if counts.size and counts.max() >= 3 and (
+            rest.size == 0 or _outside(name, rest).mean() <= IMPLAUSIBLE_SHARE):
+        return message + (f"; the value {code:g} alone occurs {counts.max()} times: if it "
+                          f"marks missing data, add it to [input] missing (now {list(missing)})")
+    better = _better_units(name, raw_present, unit)
+    if better:
+        return message + (f"; the values look like {better[0]!r}: set [input.units] {name} = "
+                          f"\"{better[0]}\"")
+    return message + ("; check the column mapping and [input.units]; if these are "
+                      "instrument faults, mark them with a missing code (or the site flag) "
+                      f"in a copy of the file, or list {name} in [input] accept_units")
+
+
+def _better_units(name: str, raw_present: np.ndarray, declared) -> list:
+    """Accepted units (other than `declared`) under which the values are plausible, best first."""
+    probe = np.array([1.0, 2.0])
+    declared_probe = to_canonical(probe, name, declared, interval_minutes=30)
+    candidates, seen = [], []
+    for unit in units_for(name):
+        converted_probe = to_canonical(probe, name, unit, interval_minutes=30)
+        if np.allclose(converted_probe, declared_probe) or any(
+                np.allclose(converted_probe, other) for other in seen):
+            continue
+        seen.append(converted_probe)
+        values = to_canonical(raw_present, name, unit, interval_minutes=30)
+        if _outside(name, values).mean() <= 0.01 and not _outside(
+                name, np.array([np.median(values)]))[0]:
+            scale = max(float(np.percentile(np.abs(values), 90)), 1e-12)
+            low, high = _TYPICAL_P90[name]
+            distance = max(math.log10(low / scale), math.log10(scale / high), 0.0)
+            candidates.append((distance, unit))
+    return [unit for _, unit in sorted(candidates)]
+
+
+def _enough_days(count: int, interval_minutes: int) -> bool:
+    return count * interval_minutes >= MIN_DAYS_FOR_UNIT_CHECKS * 24 * 60
+
+
+def _active(converted: dict, warm_celsius: float) -> np.ndarray | None:
+    """Records that are warm and bright (Rg > 300 W m-2), or None if Rg or tair is absent."""
+    rg, tair = converted.get("rg"), converted.get("tair")
+    if rg is None or tair is None:
+        return None
+    with np.errstate(invalid="ignore"):
+        return (rg > 300.0) & (tair > warm_celsius)
+
+
+def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: int):
+    """NEE in mg CO2 m-2 s-1 read as µmol m-2 s-1 (values 22.7 times too small)."""
+    nee = converted.get("nee")
+    if nee is None or units.get("nee") not in (None, "µmol m-2 s-1", "umol m-2 s-1"):
+        return None, None
+    present = np.abs(nee[np.isfinite(nee)])
+    if present.size < 48:
+        return None, None
+    p99 = float(np.percentile(present, 99))
+    if p99 >= 1.0:
+        return None, None
+    text = (f"column {columns['nee']!r} (nee, read as µmol m-2 s-1): 99 % of |values| are "
+            f"below {p99:.3g}, 22.7 times smaller than a flux record in µmol m-2 s-1 shows; "
+            "the file looks like mg CO2 m-2 s-1: set [input.units] nee = \"mg CO2 m-2 s-1\" "
+            "(or list nee in [input] accept_units to keep the values as they are)")
+    active = _active(converted, 5.0)
+    nee_active = None if active is None else nee[active & np.isfinite(nee)]
+    # Under warm, bright conditions an ecosystem's exchange together with the random
+    # error of half-hourly eddy covariance (about 0.5-1 µmol m-2 s-1 even over deserts
+    # and bare soil; Richardson et al. 2006, Agric. For. Meteorol. 136:1-18 (m))
+    # exceeds 1 µmol m-2 s-1 in far more than 1 % of records.
+    if (nee_active is not None and nee_active.size >= _MIN_ACTIVE_RECORDS
+            and _enough_days(present.size, interval_minutes)):
+        return text, None
+    return None, text.replace("; the file looks like", "; a half-hourly flux record is rarely "
+                              "that small: if the file is in").replace(
+        " (or list nee in [input] accept_units to keep the values as they are)", "")
+
+
+def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes: int):
+    """VPD off by a factor 10 (kPa read as hPa, or hPa read as kPa)."""
+    vpd, tair = converted.get("vpd"), converted.get("tair")
+    declared = units.get("vpd")
+    if vpd is None or tair is None:
+        return None, None
+    both = np.isfinite(vpd) & np.isfinite(tair)
+    if both.sum() < 48:
+        return None, None
+    saturation = saturation_vapour_pressure(tair[both])
+    ratio = vpd[both] / saturation
+    shown = declared or "hPa"
+    # physical limit: VPD cannot exceed the saturation vapour pressure at tair
+    # (allowance 10 % + 1 hPa for sensor error and the lag between the sensors)
+    above = vpd[both] > 1.1 * saturation + 1.0
+    if above.mean() > IMPLAUSIBLE_SHARE:
+        return (f"column {columns['vpd']!r} (vpd, read as {shown!r}): {above.mean():.0%} of "
+                "records exceed the saturation vapour pressure at tair (median "
+                f"{np.median(ratio):.3g} times it), which no air can; the values are too large "
+                "by a unit: if the file is in hPa set [input.units] vpd = \"hPa\", if in Pa "
+                "\"Pa\" (or list vpd in [input] accept_units)"), None
+    if declared not in (None, "hPa", "mbar"):
+        return None, None
+    rh = converted.get("rh")
+    if rh is not None:
+        expected = saturation * (1.0 - np.clip(rh[both], 0.0, 100.0) / 100.0)
+        usable = np.isfinite(expected) & (expected > 2.0)
+        if usable.sum() >= 48:
+            median = float(np.median(vpd[both][usable] / expected[usable]))
+            if 0.07 <= median <= 0.14:
+                return (f"column {columns['vpd']!r} (vpd, read as {shown!r}) is a median "
+                        f"{median:.3g} times the VPD computed from rh and tair: the file is "
+                        "in kPa: set [input.units] vpd = \"kPa\" (or list vpd in [input] "
+                        "accept_units)"), None
+    if not (np.max(vpd[both]) < 6.0 and np.median(vpd[both]) < 1.5
+            and np.percentile(ratio, 99) < 0.1):
+        return None, None
+    text = (f"column {columns['vpd']!r} (vpd, read as {shown!r}): all values are below 6 "
+            "and never exceed a tenth of the saturation vapour pressure at tair (relative "
+            "humidity would never drop below 90 %); the file looks like kPa: set "
+            "[input.units] vpd = \"kPa\" (or list vpd in [input] accept_units)")
+    warm = tair[both] >= 20.0
+    # Air at 20 °C or more stays above 90 % relative humidity through whole days only in
+    # fog; over a week with many warm records it dries below 90 % somewhere (common
+    # practice: daytime humidity minima of humid tropical forests are about 60-80 % (m)).
+    if warm.sum() >= _MIN_ACTIVE_RECORDS and _enough_days(int(both.sum()), interval_minutes):
+        return text, None
+    return None, text
+
+
+def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: int,
+                potential):
+    """Rg in kW m-2 or in MJ m-2 per interval read as W m-2."""
+    rg = converted.get("rg")
+    if rg is None or potential is None or units.get("rg") not in (None, "W m-2", "W/m2"):
+        return None
+    bright = (np.asarray(potential) > 400.0) & np.isfinite(rg)
+    if bright.sum() < _MIN_ACTIVE_RECORDS:
+        return None
+    values = rg[bright]
+    # With the sun well up (potential radiation above 400 W m-2) even a thick overcast
+    # passes 10 % or more of it (common practice), so a W m-2 record shows tens to
+    # hundreds; kW m-2 or MJ m-2 per interval show numbers below about 5.
+    if not (np.percentile(values, 90) < 5.0 and np.percentile(values, 90) > 0.05):
+        return None
+    ratio_kw = float(np.percentile(values * 1000.0 / np.asarray(potential)[bright], 90))
+    per_interval = 1e6 / (interval_minutes * 60.0)
+    ratio_mj = ratio_kw * per_interval / 1000.0
+    # clear-sky global radiation is about 0.75 of the potential (common practice)
+    candidates = sorted([(abs(math.log(ratio_kw / 0.75)), "kW m-2"),
+                         (abs(math.log(ratio_mj / 0.75)), "MJ m-2")])
+    best, other = candidates[0][1], candidates[1][1]
+    return (f"column {columns['rg']!r} (rg, read as W m-2): with the sun well up, 90 % of "
+            f"values are below {np.percentile(values, 90):.3g}, a thousandth of what a "
+            f"pyranometer in W m-2 shows; the values look like {best!r}"
+            + (" per interval" if best == "MJ m-2" else "")
+            + f": set [input.units] rg = \"{best}\" (or \"{other}\"; or list rg in [input] "
+            "accept_units)")
+
+
+def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes: int,
+                   potential=None) -> tuple[dict, list]:
+    """Find unit mix-ups that the plausible ranges let through.
+
+    Parameters
+    ----------
+    converted : dict
+        Canonical name -> values in the canonical unit (NaN = missing), all of one
+        length, one value per record.
+    units : dict
+        Canonical name -> declared unit (absent = canonical).
+    columns : dict
+        Canonical name -> file column (for messages).
+    interval_minutes : int
+        Record interval [minutes].
+    potential : array_like, optional
+        Potential (extraterrestrial) radiation of each record [W m-2]; enables the
+        Rg check.
+
+    Returns
+    -------
+    refusals : dict
+        Canonical name -> one-line message, for mix-ups found with confidence.
+    warnings : list of str
+        Suspicions on records that cannot tell for sure.
+    """
+    refusals, warnings = {}, []
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        refuse, warn = _nee_message(converted, units, columns, interval_minutes)
+        if refuse:
+            refusals["nee"] = refuse
+        if warn:
+            warnings.append(warn)
+        refuse, warn = _vpd_messages(converted, units, columns, interval_minutes)
+        if refuse:
+            refusals["vpd"] = refuse
+        if warn:
+            warnings.append(warn)
+        refuse = _rg_message(converted, units, columns, interval_minutes, potential)
+        if refuse:
+            refusals["rg"] = refuse
+    return refusals, warnings
