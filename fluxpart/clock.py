@@ -1,0 +1,574 @@
+"""Clock and site-geometry check: does measured Rg follow the sun the site's settings predict?
+
+A clock one hour off, stamps in daylight-saving civil time or a latitude with the
+wrong sign pass every range check, yet they move the night mask, the light
+response and the budgets. The sun is an outside clock: measured global radiation
+Rg must rise, peak and set with the potential (top-of-atmosphere) radiation that
+:mod:`fluxpart.solar` computes from the site's latitude, longitude and
+``utc_offset``.
+
+Method (pure functions over arrays):
+
+1. The record is cut into calendar months. In each month with at least
+   :data:`MIN_DAYS_PER_WINDOW` days of Rg and with daylight, an upper-envelope
+   diurnal composite of Rg is formed: for each time of day, the
+   :data:`ENVELOPE_QUANTILE` quantile over the month's days (the clear-sky shape;
+   clouds lower Rg, they rarely move the clear-sky curve in time).
+2. The time shift of the month is the lag that maximises the Pearson correlation
+   between that envelope and the potential radiation composite computed at lagged
+   stamps: first by whole records around the clock, then refined to a few minutes
+   by recomputing the potential radiation at sub-record lags and fitting a parabola
+   through the best three.
+3. The record's shift is the median of the monthly shifts; its spread is the
+   scaled median absolute deviation. A shift is declared only where the median
+   reaches :func:`shift_threshold_minutes` (two thirds of a record, at least
+   20 min) and two thirds of the months agree in sign and at least half of it.
+4. Daylight saving: the monthly shifts fall in two groups one hour apart, and the
+   later group is one contiguous block of months of the year.
+5. Hemisphere: the clear-day (upper quantile) daily Rg of each month, divided by
+   the daily potential radiation, should be about constant through the seasons;
+   with the latitude's sign flipped it swings with the seasons. The latitude is
+   declared in the wrong hemisphere only where the flipped latitude explains the
+   seasonal cycle clearly better (see :func:`check_hemisphere`).
+
+The check says when it cannot judge: fewer than :data:`MIN_WINDOWS` usable months
+(short records, polar night, Rg missing or without a diurnal cycle) or, for the
+hemisphere, too little seasonal contrast (near the equator, or a short record).
+
+References
+----------
+Michalsky, J. J. (1988). The Astronomical Almanac's algorithm for approximate solar
+position (1950–2050). Solar Energy 40(3):227–235. doi:10.1016/0038-092X(88)90045-X
+(the potential radiation this check compares against, via :mod:`fluxpart.solar`).
+
+Iqbal, M. (1983). An Introduction to Solar Radiation. Academic Press, Toronto,
+ch. 1 (solar noon, day length and their dependence on latitude and season) (m).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from .solar import potential_radiation
+
+__all__ = [
+    "ClockVerdict",
+    "ENVELOPE_QUANTILE",
+    "MIN_DAYS_PER_WINDOW",
+    "MIN_WINDOWS",
+    "check_clock",
+    "check_hemisphere",
+    "monthly_shifts",
+    "shift_threshold_minutes",
+]
+
+#: Quantile of Rg over a month's days, per time of day, taken as the clear-sky
+#: envelope [1]; 0.9 (about the 3rd clearest of 30 days), our choice: high enough
+#: to follow clear-sky timing in cloudy climates, below the maximum so one
+#: cloud-enhanced spike does not set it.
+ENVELOPE_QUANTILE = 0.9
+#: Fewest days with Rg (at least 80 % of the day's records present) for a month to
+#: be used [days]; our choice: a third of a month, so the envelope is set by
+#: several days.
+MIN_DAYS_PER_WINDOW = 10
+#: Fewest usable months before the check judges the clock [1]; our choice: one
+#: month alone cannot show that its estimate is consistent.
+MIN_WINDOWS = 2
+#: Lowest correlation between the Rg envelope and the lagged potential radiation
+#: for a month to count [1]; our choice: below it the month's Rg has no clear
+#: diurnal cycle (broken or shaded sensor) and its timing is not evidence.
+MIN_CORRELATION = 0.8
+#: Smallest daily range of the composites to call a month sunlit [W m-2]; our
+#: choice, about 2 % of the noon potential radiation at mid-latitudes.
+MIN_DIURNAL_RANGE = 20.0
+#: Level, as a share of the composite's daily range above its minimum, at which the
+#: rising and falling crossings are timed [1]; our choice: low enough that diffuse
+#: light, which a tilted or partly shaded sensor still sees from the whole sky,
+#: dominates; high enough to stay clear of the night offset of the sensor.
+EDGE_LEVEL = 0.15
+_DAYLIGHT_SAVING_STEP = 60.0      # minutes: the daylight-saving change of the clock
+
+
+@dataclass(frozen=True)
+class ClockVerdict:
+    """What the clock and geometry check found.
+
+    Attributes
+    ----------
+    status : str
+        ``"consistent"``, ``"shifted"``, ``"daylight_saving"``, ``"hemisphere"``
+        or ``"cannot_judge"``.
+    shift_minutes : float
+        Median monthly shift of Rg against the sun [min]; positive when Rg comes
+        later than the site's settings predict. NaN when not judged.
+    spread_minutes : float
+        Scaled median absolute deviation of the monthly shifts [min].
+    months_used : int
+        Months that entered the estimate.
+    suggested_utc_offset : float or None
+        The ``[site] utc_offset`` that would remove the shift [hours], where the
+        shift is one.
+    problems : tuple of str
+        Each problem in one line, with what to change.
+    notes : tuple of str
+        Why a part could not be judged, and other remarks that are not problems.
+    hemisphere : str
+        ``"consistent"``, ``"mismatch"`` or ``"cannot_judge"``.
+    months : pandas.DataFrame
+        One row per month: ``days``, ``shift_minutes``, ``correlation``, ``used``,
+        ``reason``.
+    """
+
+    status: str
+    shift_minutes: float
+    spread_minutes: float
+    months_used: int
+    suggested_utc_offset: float | None = None
+    problems: tuple = ()
+    notes: tuple = ()
+    hemisphere: str = "cannot_judge"
+    months: pd.DataFrame = field(default_factory=pd.DataFrame, repr=False)
+
+    def to_dict(self) -> dict:
+        """The verdict as plain JSON-compatible values (for the result's provenance)."""
+        def number(value):
+            return None if value is None or not np.isfinite(value) else round(float(value), 1)
+        return {"status": self.status, "shift_minutes": number(self.shift_minutes),
+                "spread_minutes": number(self.spread_minutes),
+                "months_used": int(self.months_used),
+                "suggested_utc_offset": self.suggested_utc_offset,
+                "hemisphere": self.hemisphere, "problems": list(self.problems),
+                "notes": list(self.notes)}
+
+
+def shift_threshold_minutes(interval_minutes: float) -> float:
+    """Smallest median shift the check declares a clock problem [min].
+
+    Two thirds of a record, at least 20 min: 20 min for 30-minute records and
+    40 min for hourly ones. A shift of one record (the smallest a stamp or offset
+    mistake makes, e.g. end stamps read as start stamps) is caught with margin,
+    while the few minutes to tens of minutes that a slightly tilted or partly
+    shaded Rg sensor moves the apparent solar noon (a tilt β moves it by about
+    β / cos φ of hour angle for the direct beam; Iqbal 1983, ch. 1 (m)) are not
+    called a clock error. Our choice.
+    """
+    return max(20.0, 2.0 * float(interval_minutes) / 3.0)
+
+
+def _day_slot_matrix(index: pd.DatetimeIndex, values: np.ndarray, interval_minutes: float):
+    """Values as a (day x time-of-day slot) matrix, NaN where absent; and the days."""
+    slots = int(round(1440.0 / interval_minutes))
+    midnight = index.normalize()
+    minute_of_day = ((index - midnight) / pd.Timedelta(minutes=1)).to_numpy()
+    slot = np.clip(np.floor(minute_of_day / interval_minutes).astype(int), 0, slots - 1)
+    first = midnight[0]
+    day = ((midnight - first) / pd.Timedelta(days=1)).to_numpy().astype(int)
+    matrix = np.full((day[-1] + 1, slots), np.nan)
+    matrix[day, slot] = values
+    days = pd.DatetimeIndex(first + pd.to_timedelta(np.arange(day[-1] + 1), unit="D"))
+    return matrix, days
+
+
+def _correlation(envelope: np.ndarray, model: np.ndarray) -> float:
+    ok = np.isfinite(envelope) & np.isfinite(model)
+    if ok.sum() < 4:
+        return np.nan
+    a = envelope[ok] - envelope[ok].mean()
+    b = model[ok] - model[ok].mean()
+    scale = np.sqrt((a * a).sum() * (b * b).sum())
+    return float((a * b).sum() / scale) if scale > 0 else np.nan
+
+
+def _crossing_midpoint(curve: np.ndarray, interval_minutes: float, level: float) -> float:
+    """Minute of the day halfway between the rising and the falling crossing of a level.
+
+    `level` is a share of the curve's range above its minimum. NaN where the curve
+    does not cross it on both sides of its peak within the day.
+    """
+    slots = len(curve)
+    if not np.isfinite(curve).all():
+        return np.nan
+    peak = int(np.argmax(curve))
+    rolled = np.roll(curve, slots // 2 - peak)             # peak in the middle
+    low, high = rolled.min(), rolled.max()
+    threshold = low + level * (high - low)
+    centre = slots // 2
+    below = rolled < threshold
+    left = np.flatnonzero(below[:centre])
+    right = np.flatnonzero(below[centre:])
+    if left.size == 0 or right.size == 0:
+        return np.nan
+    i = left[-1]                                           # last below before the peak
+    j = centre + right[0]                                  # first below after the peak
+    rise = i + (threshold - rolled[i]) / (rolled[i + 1] - rolled[i])
+    fall = j - 1 + (rolled[j - 1] - threshold) / (rolled[j - 1] - rolled[j])
+    middle = 0.5 * (rise + fall) - (slots // 2 - peak)     # in slots, unrolled
+    return float(middle * interval_minutes)
+
+
+def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes) -> pd.DataFrame:
+    """Time shift of measured Rg against potential radiation, month by month.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Interval starts, local standard time, regular.
+    rg : array_like
+        Measured global radiation [W m-2]; NaN where missing.
+    latitude, longitude : float
+        Site position [degrees north, east].
+    utc_offset : float
+        The configured offset of the stamps from UTC [hours].
+    interval_minutes : float
+        Record interval [min].
+
+    Returns
+    -------
+    pandas.DataFrame
+        Indexed by month start: ``month`` (1–12), ``days`` (days with Rg),
+        ``shift_minutes`` (lag of Rg behind the sun [min], positive = Rg later),
+        ``correlation`` (at that lag), ``rg_daily`` (clear-day, i.e.
+        :data:`ENVELOPE_QUANTILE`, daily mean Rg [W m-2]), ``potential_daily``
+        (mean potential radiation [W m-2]), ``used`` (bool) and ``reason`` (why a
+        month was not used).
+
+    References
+    ----------
+    Michalsky, J. J. (1988). Solar Energy 40(3):227–235 (via :mod:`fluxpart.solar`).
+    """
+    index = pd.DatetimeIndex(index)
+    rg = np.asarray(rg, dtype=float)
+    interval = float(interval_minutes)
+    slots = int(round(1440.0 / interval))
+    position = (latitude, longitude, utc_offset)
+    rg_matrix, days = _day_slot_matrix(index, rg, interval)
+    potential = potential_radiation(index, *position, interval)
+    potential_matrix, _ = _day_slot_matrix(index, potential, interval)
+    present = np.isfinite(rg_matrix)
+    good_day = present.sum(axis=1) >= 0.8 * slots
+    months = days.to_period("M")
+
+    step = interval / 6.0
+    fine_lags = np.arange(-6, 7) * step             # sub-record lags [min]
+    fine = {lag: _day_slot_matrix(index, potential_radiation(
+        index - pd.Timedelta(minutes=float(lag)), *position, interval), interval)[0]
+        for lag in fine_lags if lag != 0.0}
+    fine[0.0] = potential_matrix
+
+    rows = []
+    for month in months.unique():
+        in_month = (months == month) & good_day
+        row = {"month_start": month.start_time, "month": month.month,
+               "days": int(in_month.sum()), "shift_minutes": np.nan, "correlation": np.nan,
+               "edge_shift_minutes": np.nan, "rg_daily": np.nan, "potential_daily": np.nan,
+               "used": False, "reason": ""}
+        rows.append(row)
+        if row["days"] < MIN_DAYS_PER_WINDOW:
+            row["reason"] = f"{row['days']} days with Rg (fewer than {MIN_DAYS_PER_WINDOW})"
+            continue
+        block = np.where(present[in_month], rg_matrix[in_month], np.nan)
+        envelope = np.nanquantile(block, ENVELOPE_QUANTILE, axis=0)
+        mask = present[in_month]
+        composite = {lag: np.nanmean(np.where(mask, matrix[in_month], np.nan), axis=0)
+                     for lag, matrix in fine.items()}
+        row["potential_daily"] = float(np.nanmean(composite[0.0]))
+        daily_rg = np.nanmean(block, axis=1)
+        row["rg_daily"] = float(np.quantile(daily_rg, ENVELOPE_QUANTILE))
+        if np.ptp(composite[0.0]) < MIN_DIURNAL_RANGE:
+            row["reason"] = "no daylight in the potential radiation (polar night)"
+            continue
+        if np.nanmax(envelope) - np.nanmin(envelope) < MIN_DIURNAL_RANGE:
+            row["reason"] = "measured Rg has no diurnal cycle"
+            continue
+        coarse = np.array([_correlation(envelope, np.roll(composite[0.0], k))
+                           for k in range(slots)])
+        if not np.isfinite(coarse).any():
+            row["reason"] = "no correlation can be formed"
+            continue
+        best = int(np.nanargmax(coarse))
+        records = best if best <= slots // 2 else best - slots
+        scores = np.array([_correlation(envelope, np.roll(composite[lag], records))
+                           for lag in fine_lags])
+        i = int(np.nanargmax(scores))
+        lag = records * interval + fine_lags[i]
+        if 0 < i < len(fine_lags) - 1 and np.isfinite(scores[i - 1:i + 2]).all():
+            left, centre, right = scores[i - 1:i + 2]
+            curvature = left - 2.0 * centre + right
+            if curvature < 0:
+                lag += step * 0.5 * (left - right) / curvature
+        lag = (lag + 720.0) % 1440.0 - 720.0
+        row["shift_minutes"] = float(lag)
+        edge = (_crossing_midpoint(envelope, interval, EDGE_LEVEL)
+                - _crossing_midpoint(composite[0.0], interval, EDGE_LEVEL))
+        row["edge_shift_minutes"] = float((edge + 720.0) % 1440.0 - 720.0)
+        row["correlation"] = float(scores[i])
+        if scores[i] < MIN_CORRELATION:
+            row["reason"] = (f"Rg envelope matches the sun poorly (r = {scores[i]:.2f} < "
+                             f"{MIN_CORRELATION})")
+            continue
+        row["used"] = True
+    table = pd.DataFrame(rows).set_index("month_start") if rows else pd.DataFrame(
+        columns=["month", "days", "shift_minutes", "correlation", "rg_daily",
+                 "potential_daily", "used", "reason"])
+    return table
+
+
+def check_hemisphere(index, rg, latitude, longitude, utc_offset, interval_minutes,
+                     months: pd.DataFrame | None = None) -> tuple[str, str]:
+    """Is the latitude's sign consistent with the seasonal cycle of measured Rg?
+
+    Parameters
+    ----------
+    index, rg, latitude, longitude, utc_offset, interval_minutes
+        As for :func:`monthly_shifts`.
+    months : pandas.DataFrame, optional
+        The output of :func:`monthly_shifts` for the configured latitude, if at hand.
+
+    Returns
+    -------
+    verdict : str
+        ``"consistent"``, ``"mismatch"`` or ``"cannot_judge"``.
+    detail : str
+        One line saying why.
+
+    Notes
+    -----
+    For each month with at least :data:`MIN_DAYS_PER_WINDOW` days of Rg, the
+    clear-day daily mean Rg E (the :data:`ENVELOPE_QUANTILE` of daily means) is
+    compared with the mean potential radiation at the configured latitude P and
+    at the flipped latitude Q. Clear-sky transmittance varies little through the
+    year, so ``log((E + 5) / (P + 5))`` should be nearly constant. The latitude
+    is a mismatch where the standard deviation of that log ratio across months is
+    above 0.25 (±28 %) and more than twice the one with Q, and E correlates
+    better with Q than with P. Judged only with at least three months whose
+    potential radiation differs by 25 % or more between the sunniest and the
+    darkest (the seasonal contrast is too small near the equator). The 5 W m-2
+    offset keeps polar-night months finite. Thresholds: our choice; day length
+    and daily extraterrestrial radiation against latitude: Allen et al. (1998),
+    FAO-56, eqs. 21 and 34.
+
+    References
+    ----------
+    Allen, R. G., Pereira, L. S., Raes, D. & Smith, M. (1998). Crop
+    evapotranspiration. FAO Irrigation and Drainage Paper 56, Rome.
+    """
+    if months is None:
+        months = monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
+    enough = months[months["days"] >= MIN_DAYS_PER_WINDOW]
+    if len(enough) < 3:
+        return "cannot_judge", (f"hemisphere not judged: {len(enough)} month(s) with "
+                                f"{MIN_DAYS_PER_WINDOW} or more days of Rg (3 needed)")
+    index = pd.DatetimeIndex(index)
+    flipped = potential_radiation(index, -latitude, longitude, utc_offset, interval_minutes)
+    flipped_monthly = pd.Series(flipped, index=index).groupby(index.to_period("M")).mean()
+    q = flipped_monthly.reindex(enough.index.to_period("M")).to_numpy()
+    e = enough["rg_daily"].to_numpy()
+    p = enough["potential_daily"].to_numpy()
+    contrast = (np.nanmax(p) + 5.0) / (np.nanmin(p) + 5.0)
+    contrast_flipped = (np.nanmax(q) + 5.0) / (np.nanmin(q) + 5.0)
+    if max(contrast, contrast_flipped) < 1.25:
+        return "cannot_judge", ("hemisphere not judged: potential radiation varies by less "
+                                "than 25 % between the months of the record")
+    if np.nanmax(e) < MIN_DIURNAL_RANGE:
+        return "cannot_judge", "hemisphere not judged: measured Rg shows no daylight"
+    spread = np.nanstd(np.log((e + 5.0) / (p + 5.0)))
+    spread_flipped = np.nanstd(np.log((e + 5.0) / (q + 5.0)))
+    r_configured = _correlation(e, p)
+    r_flipped = _correlation(e, q)
+    if spread > 0.25 and spread > 2.0 * spread_flipped and r_flipped > r_configured:
+        return "mismatch", (
+            f"the seasonal cycle of Rg fits latitude {-latitude:g} (r = {r_flipped:.2f}), not "
+            f"the configured {latitude:g} (r = {r_configured:.2f}): the latitude likely has "
+            f"the wrong sign; set [site] latitude = {-latitude:g}")
+    return "consistent", (f"seasonal cycle of Rg consistent with latitude {latitude:g} "
+                          f"(r = {r_configured:.2f})")
+
+
+def _daylight_saving(used: pd.DataFrame):
+    """Base shift and later months where the shifts form two groups one hour apart."""
+    shifts = used["shift_minutes"].to_numpy()
+    if len(shifts) < 4:
+        return None
+    tolerance = 15.0
+    candidates = np.unique(np.round(shifts))
+    best = None
+    for base in candidates:
+        for low in (base, base - _DAYLIGHT_SAVING_STEP):
+            residual = np.minimum(np.abs(shifts - low),
+                                  np.abs(shifts - low - _DAYLIGHT_SAVING_STEP))
+            score = np.minimum(residual, 20.0).sum()
+            if best is None or score < best[0]:
+                best = (score, low)
+    _, low = best
+    in_low = np.abs(shifts - low) <= tolerance
+    in_high = np.abs(shifts - low - _DAYLIGHT_SAVING_STEP) <= tolerance
+    if in_low.sum() < 2 or in_high.sum() < 2:
+        return None
+    high_months = set(used["month"].to_numpy()[in_high].tolist())
+    low_months = set(used["month"].to_numpy()[in_low].tolist())
+    if high_months & low_months or not _one_block(high_months, low_months):
+        return None
+    base = float(np.median(shifts[in_low]))
+    return base, sorted(high_months)
+
+
+def _one_block(inside: set, outside: set) -> bool:
+    """Whether some cyclic run of months of the year holds all of `inside`, none of `outside`."""
+    for start in range(1, 13):
+        for length in range(1, 12):
+            run = {(start - 1 + k) % 12 + 1 for k in range(length)}
+            if inside <= run and not run & outside:
+                return True
+    return False
+
+
+def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: str | None,
+         shift_applied: float, longitude: float) -> tuple[str, float | None]:
+    """What setting removes a shift of `shift` minutes, in words, and the utc_offset."""
+    hours = shift / 60.0
+    # the sun crosses the meridian 4 min later per degree west (Earth turns 360° per day);
+    # a longitude of the wrong sign moves solar noon by 8 min per degree
+    flipped = (8.0 * longitude + 720.0) % 1440.0 - 720.0
+    if abs(longitude) >= 2.0 and abs(flipped - shift) <= 10.0:
+        return (f"[site] longitude = {-longitude:g} (the configured {longitude:g} has the "
+                "wrong sign)"), None
+    offset = utc_offset + round(hours * 4.0) / 4.0          # offsets come in quarter hours
+    fixes = []
+    residual_offset = abs(shift - (offset - utc_offset) * 60.0)
+    suggested = None
+    whole_hours = abs(shift - round(hours) * 60.0) <= 15.0
+    if abs(offset - utc_offset) >= 0.5 and residual_offset <= 15.0 and -12 <= offset <= 14:
+        fixes.append(f"[site] utc_offset = {offset:g} (stamps in UTC{offset:+g} h rather than "
+                     f"UTC{utc_offset:+g} h)")
+        suggested = float(offset)
+    if time_marks is not None:
+        shifts = {"start": 0.0, "middle": interval_minutes / 2.0, "end": float(interval_minutes)}
+        for marks, applied in shifts.items():
+            if marks != time_marks and abs(shift_applied + shift - applied) <= 10.0:
+                fixes.append(f"[input] time_marks = \"{marks}\" (the stamps mark interval "
+                             f"{marks}s, not {time_marks}s)" if marks != "middle" else
+                             "[input] time_marks = \"middle\" (the stamps mark interval "
+                             f"middles, not {time_marks}s)")
+    elif abs(abs(shift) - interval_minutes) <= 10.0 or abs(abs(shift)
+                                                           - interval_minutes / 2) <= 5.0:
+        fixes.append("the stamp convention (interval start, middle or end: [input] time_marks)")
+    if len(fixes) > 1 and not whole_hours:
+        fixes = fixes[1:] + fixes[:1]                        # a stamp convention first
+    if not fixes:
+        fixes.append(f"the logger clock, or [site] utc_offset (about {offset:g} h) or "
+                     "[site] longitude")
+    return " or ".join(fixes), suggested
+
+
+def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
+                time_marks: str | None = None, shift_applied_minutes: float = 0.0
+                ) -> ClockVerdict:
+    """Judge the record's clock and the site's latitude sign from measured Rg.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Interval starts, local standard time, regular.
+    rg : array_like
+        Measured global radiation [W m-2]; NaN where missing.
+    latitude, longitude : float
+        Site position [degrees north, east].
+    utc_offset : float
+        Configured offset of local standard time from UTC [hours].
+    interval_minutes : float
+        Record interval [min].
+    time_marks : {"start", "middle", "end"}, optional
+        How the file's stamps were declared, where the record came from a file; lets
+        the message name the stamp convention that would remove the shift.
+    shift_applied_minutes : float, optional
+        Minutes the reader subtracted from the file's stamps (0, half or one
+        interval for ``time_marks`` start, middle, end).
+
+    Returns
+    -------
+    ClockVerdict
+        The status, the median shift [min] and its spread, the problems with the
+        setting to change, and notes where the check cannot judge.
+
+    Notes
+    -----
+    See the module description for the method. A positive shift means measured Rg
+    comes later than the sun at the configured settings; the stamps are then in a
+    time zone ``shift / 60`` hours east of the configured one.
+
+    References
+    ----------
+    Michalsky, J. J. (1988). Solar Energy 40(3):227–235.
+    """
+    interval = float(interval_minutes)
+    months = monthly_shifts(index, rg, latitude, longitude, utc_offset, interval)
+    used = months[months["used"]]
+    problems, notes = [], []
+    hemisphere, hemisphere_detail = check_hemisphere(index, rg, latitude, longitude, utc_offset,
+                                                     interval, months)
+    if hemisphere == "mismatch":
+        problems.append(f"site geometry: {hemisphere_detail}")
+    elif hemisphere == "cannot_judge":
+        notes.append(hemisphere_detail)
+    if len(used) < MIN_WINDOWS:
+        reasons = months.loc[~months["used"], "reason"].value_counts()
+        detail = "; ".join(f"{count} month(s): {why}" for why, count in reasons.items())
+        notes.append(f"clock not judged: {len(used)} usable month(s) of Rg ({MIN_WINDOWS} "
+                     f"needed){'; ' + detail if detail else ''}")
+        status = "hemisphere" if hemisphere == "mismatch" else "cannot_judge"
+        return ClockVerdict(status, np.nan, np.nan, len(used), None, tuple(problems),
+                            tuple(notes), hemisphere, months)
+    shifts = used["shift_minutes"].to_numpy()
+    median = float(np.median(shifts))
+    spread = float(1.4826 * np.median(np.abs(shifts - median)))
+    threshold = shift_threshold_minutes(interval)
+    suggested = None
+    status = "consistent"
+    saving = _daylight_saving(used)
+    if saving is not None:
+        base, later = saving
+        status = "daylight_saving"
+        names = ", ".join(pd.Timestamp(2001, m, 1).strftime("%b") for m in later)
+        text = (f"clock: Rg comes about 60 min later against the sun in {names} than in the "
+                f"other months: the stamps follow daylight-saving civil time; give "
+                f"[input] time_zone = \"Area/City\" (converted to local standard time) or "
+                f"convert the stamps to local standard time")
+        if abs(base) >= threshold:
+            fix, suggested = _fix(base, utc_offset, interval, time_marks, shift_applied_minutes,
+                                  longitude)
+            text += f"; outside daylight saving Rg is {base:+.0f} min off: set {fix}"
+        problems.append(text)
+        median = base
+    elif abs(median) >= threshold:
+        edges = used["edge_shift_minutes"].dropna().to_numpy()
+        edge_median = float(np.median(edges)) if edges.size else np.nan
+        agree = np.mean((np.sign(shifts) == np.sign(median))
+                        & (np.abs(shifts) >= threshold / 2.0))
+        tolerance = max(10.0, 0.3 * abs(median))
+        edge_spread = (float(1.4826 * np.median(np.abs(edges - edge_median)))
+                       if edges.size else np.nan)
+        if (agree >= 2.0 / 3.0 and abs(edge_median) >= threshold
+                and abs(edge_median - median) <= tolerance
+                and spread <= tolerance and edge_spread <= tolerance):
+            status = "shifted"
+            fix, suggested = _fix(median, utc_offset, interval, time_marks,
+                                  shift_applied_minutes, longitude)
+            direction = "later" if median > 0 else "earlier"
+            problems.append(
+                f"clock: measured Rg comes {abs(median):.0f} min {direction} than the sun at "
+                f"[site] utc_offset = {utc_offset:g}, longitude {longitude:g} (spread "
+                f"{spread:.0f} min over {len(used)} months; the rise and fall of Rg agree: "
+                f"{edge_median:+.0f} min); likely fix: {fix}")
+        else:
+            notes.append(
+                f"clock: Rg peaks {median:+.0f} min (spread {spread:.0f} min) against the sun "
+                f"but its rise and fall say {edge_median:+.0f} min (spread {edge_spread:.0f} "
+                f"min) and {agree:.0%} of {len(used)} months agree: a tilted or partly shaded "
+                "Rg sensor rather than a clock error; not called a clock problem")
+    if status == "consistent" and hemisphere == "mismatch":
+        status = "hemisphere"
+    return ClockVerdict(status, median, spread, len(used), suggested, tuple(problems),
+                        tuple(notes), hemisphere, months)
