@@ -1069,3 +1069,133 @@ def test_nonfinite_and_absurd_values_read_as_missing(tmp_path, recwarn):
     assert report.nonfinite_cells == {"nee": 0, "rg": 1, "tair": 0, "vpd": 2, "ustar": 0}
     assert "non-finite        rg: 1, vpd: 2" in str(report)
     assert not [w for w in recwarn if issubclass(w.category, RuntimeWarning)]
+
+
+# ----------------------------------------------------------------------------- unit mix-ups (issue 12)
+
+
+def _climate(kind, days=10, seed=5):
+    """Invented records of one climate with its site: warm desert, polar summer and night,
+    humid tropics, a crop with large uptake, a cool grassland (known truth for the checks).
+
+    Rg follows the potential radiation of fluxpart.solar times a cloud factor; the flux
+    noise is Laplace with scale 0.5 + 0.1 |NEE| µmol m-2 s-1, after the growth of random
+    error with flux magnitude (Richardson et al. 2006, Agric. For. Meteorol. 136:1-18).
+    """
+    from fluxpart.solar import potential_radiation
+
+    sites = {  # latitude, longitude, utc_offset, start, tair range [°C], rh range [%], uptake
+        "desert": (33.0, -112.0, -7.0, "2021-07-01", (28, 46), (6, 25), -2.0),
+        "polar_summer": (78.9, 11.9, 1.0, "2021-06-20", (0, 7), (70, 95), -4.0),
+        "polar_night": (78.9, 11.9, 1.0, "2021-12-10", (-28, -15), (75, 95), 0.0),
+        "humid_tropics": (-2.6, -60.2, -4.0, "2021-03-01", (23, 31), (72, 99), -25.0),
+        "crop": (40.0, -88.0, -6.0, "2021-07-15", (20, 33), (45, 90), -60.0),
+        "grassland": (-45.0, 170.0, 12.0, "2021-12-01", (8, 22), (50, 95), -18.0),
+    }
+    latitude, longitude, offset, start, (t_low, t_high), (h_low, h_high), uptake = sites[kind]
+    rng = np.random.default_rng(seed)
+    starts = pd.date_range(start, periods=48 * days, freq="30min")
+    potential = potential_radiation(starts, latitude, longitude, offset, interval_minutes=30)
+    clouds = np.repeat(rng.uniform(0.3, 0.8, days), 48)
+    rg = potential * clouds + rng.normal(0, 2, len(starts))
+    light = potential / max(potential.max(), 1.0)
+    tair = t_low + (t_high - t_low) * light ** 0.7
+    rh = h_high - (h_high - h_low) * light ** 0.7
+    vpd = 6.1094 * np.exp(17.625 * tair / (tair + 243.04)) * (1 - rh / 100)
+    respiration = 0.3 + 0.15 * np.exp(0.07 * tair) * (1 if uptake else 0.3)
+    nee = respiration + uptake * (clouds / 0.8) * 2 * light / (1 + light)
+    nee = nee + rng.laplace(0, 0.5 + 0.1 * np.abs(nee), len(starts)) / np.sqrt(2)
+    records = pd.DataFrame({"co2_flux": np.round(nee, 3), "sw_in": np.round(rg, 1),
+                            "t_air": np.round(tair, 2), "vpd_air": np.round(vpd, 3),
+                            "u_fric": np.round(rng.uniform(0.05, 0.8, len(starts)), 3),
+                            "rel_hum": np.round(rh, 1)}, index=starts)
+    return records, Site(name=kind, latitude=latitude, longitude=longitude, utc_offset=offset)
+
+
+CLIMATES = ["desert", "polar_summer", "polar_night", "humid_tropics", "crop", "grassland"]
+
+
+@pytest.mark.parametrize("kind", CLIMATES)
+def test_correct_files_of_every_climate_pass(tmp_path, kind):
+    """Correct units at a desert (VPD to ~90 hPa), polar summer and night, humid tropics,
+    a crop with ~-60 µmol m-2 s-1 uptake and a grassland: no refusal, no unit suspicion."""
+    records, site = _climate(kind)
+    frame, report = _read(_write(tmp_path / "t.csv", records), site=site,
+                          columns=MAPPING | {"rh": "rel_hum"})
+    assert len(frame) == len(records)
+    suspicious = [w for w in report.warnings if "set [input.units]" in w]
+    if kind == "polar_night":  # no sun, tiny fluxes, saturated air: may warn, never refuse
+        assert all(w.startswith(("nee", "column 'vpd_air'")) for w in suspicious)
+    else:
+        assert not suspicious
+
+
+@pytest.mark.parametrize("kind", ["grassland", "humid_tropics", "polar_summer", "crop"])
+def test_nee_in_mg_refused(tmp_path, kind):
+    """NEE in mg CO2 m-2 s-1 read as µmol (22.7 times too small: 44.01 g mol-1 CO2,
+    IUPAC atomic weights) is refused with the unit to set; accept_units keeps it."""
+    records, site = _climate(kind)
+    records["co2_flux"] = (records["co2_flux"] / UNITS["flux"]["mg_co2_in_umol"]).round(5)
+    path = _write(tmp_path / "t.csv", records)
+    with pytest.raises(ImplausibleValueError,
+                       match=r"column 'co2_flux' \(nee.*set \[input.units\] nee = "
+                             r"\"mg CO2 m-2 s-1\""):
+        _read(path, site=site)
+    frame, _ = _read(path, site=site, units={"nee": "mg CO2 m-2 s-1"})
+    original, _ = _read(_write(tmp_path / "o.csv", _climate(kind)[0]), site=site)
+    np.testing.assert_allclose(frame["nee"], original["nee"], atol=2e-4 * 22.7)
+    kept, report = _read(path, site=site, accept_units=["nee"])
+    assert report.accepted_units == ("nee",) and any("accept_units" in w for w in report.warnings)
+    np.testing.assert_allclose(kept["nee"].abs().max(), records["co2_flux"].abs().max())
+
+
+@pytest.mark.parametrize("kind", ["desert", "grassland", "humid_tropics", "crop"])
+def test_vpd_in_kpa_read_as_hpa_refused(tmp_path, kind):
+    """VPD in kPa read as hPa (1 kPa = 10 hPa, SI prefixes) stays below a tenth of the
+    saturation vapour pressure: refused, also at a desert where kPa values reach 9."""
+    records, site = _climate(kind)
+    records["vpd_air"] = (records["vpd_air"] / 10).round(4)
+    with pytest.raises(ImplausibleValueError, match=r"'vpd_air'.*vpd = \"kPa\""):
+        _read(_write(tmp_path / "t.csv", records), site=site)
+
+
+def test_vpd_in_kpa_caught_against_rh(tmp_path):
+    """With rh also mapped, VPD a tenth of es(1 - rh) is refused as kPa."""
+    records, site = _climate("desert")
+    records["vpd_air"] = (records["vpd_air"] / 10).round(4)
+    with pytest.raises(ImplausibleValueError, match=r"median 0.1.* times the VPD computed from "
+                                                    r"rh and tair.*vpd = \"kPa\""):
+        _read(_write(tmp_path / "t.csv", records), site=site,
+              columns=MAPPING | {"rh": "rel_hum"})
+
+
+def test_vpd_above_saturation_refused(tmp_path):
+    """VPD cannot exceed the saturation vapour pressure (the physical limit): hPa values
+    declared as kPa are refused."""
+    records, site = _climate("polar_summer")
+    with pytest.raises(ImplausibleValueError, match=r"'vpd_air' \(vpd, read as 'kPa'\).*"
+                                                    r"saturation vapour pressure"):
+        _read(_write(tmp_path / "t.csv", records), site=site, units={"vpd": "kPa"})
+
+
+@pytest.mark.parametrize(("kind", "unit", "factor"), [
+    ("grassland", "kW m-2", 1e-3), ("crop", "kW m-2", 1e-3), ("desert", "MJ m-2", 1800e-6),
+    ("humid_tropics", "MJ m-2", 1800e-6)])
+def test_rg_in_kw_or_mj_refused(tmp_path, kind, unit, factor):
+    """Rg in kW m-2 or MJ m-2 per half hour (1 W = 1 J s-1) is refused naming the unit; read
+    with that unit it gives the W m-2 record back."""
+    records, site = _climate(kind)
+    original = _plain(tmp_path, records, site=site)
+    records["sw_in"] = (records["sw_in"] * factor).round(6)
+    path = _write(tmp_path / "t.csv", records)
+    with pytest.raises(ImplausibleValueError, match=rf"'sw_in' \(rg.*rg = \"{unit}\""):
+        _read(path, site=site)
+    frame, _ = _read(path, site=site, units={"rg": unit})
+    np.testing.assert_allclose(frame["rg"], original["rg"], atol=1.0)
+
+
+def test_accept_units_setting_validated(tmp_path):
+    """accept_units must list canonical variables."""
+    records, site = _climate("grassland")
+    with pytest.raises(ConfigError, match=r"\[input\] accept_units = \['nnee'\]"):
+        _read(_write(tmp_path / "t.csv", records), site=site, accept_units=["nnee"])
