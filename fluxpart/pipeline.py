@@ -238,15 +238,20 @@ def _per_record(index, per_year: pd.Series) -> np.ndarray:
     return per_year.reindex(index.year).to_numpy(dtype=float)
 
 
+def _fill_nee(nee_measured, conditions, index, is_night, config):
+    """MDS gap filling of NEE with the configured settings (also scored on artificial gaps)."""
+    return gapfill.fill_marginal(
+        nee_measured, conditions, index, rg_tolerance=config.rg_tolerance,
+        tair_tolerance=config.tair_tolerance, vpd_tolerance=config.vpd_tolerance,
+        max_window_days=config.gapfill_max_window_days)
+
+
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
                         temperature, config):
     """Gap-fill NEE after the u* filter at `threshold` and partition it both ways."""
     too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
     nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
-    filled = gapfill.fill_marginal(
-        nee_measured, conditions, frame.index, rg_tolerance=config.rg_tolerance,
-        tair_tolerance=config.tair_tolerance, vpd_tolerance=config.vpd_tolerance,
-        max_window_days=config.gapfill_max_window_days)
+    filled = _fill_nee(nee_measured, conditions, frame.index, is_night, config)
     temperature_filled = filled_drivers[f"{temperature}_filled"].to_numpy()
     night = nighttime.partition_nighttime(
         frame.index, nee_measured, filled["value"].to_numpy(), screened[temperature].to_numpy(),
@@ -383,9 +388,10 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         sigma = np.full(len(timeseries), np.nan)
         warnings.append(f"random error of NEE not estimated: {error}")
     timeseries = timeseries.assign(nee_random_error=sigma)
-    random = uncertainty.monte_carlo_sums(sigma, timeseries.index, interval,
-                                          draws=config.random_error_draws, seed=config.seed)
-    annual = annual.join(uncertainty.uncertainty_budget(annual, random))
+    daily, monthly, annual, gapfill_model = _uncertainty(
+        daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night, night, day,
+        temperature, interval, config)
+    parameters["gapfill_error_model"] = gapfill_model
     annual = annual.join(uncertainty.carbon_accounting_units(annual))
     audit_table = audit.audit_trail(timeseries)
     counts = screens.counts.copy()
@@ -404,7 +410,45 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                     "nighttime_rref": night.rref_windows, "daytime": day.parameters,
                     "ustar_bootstrap": ustar_draws, **parameters},
         screening_counts=counts, warnings=tuple(warnings),
-        provenance={**(provenance or {}), "screening": screens.thresholds})
+        provenance={**(provenance or {}), "screening": screens.thresholds,
+                    "uncertainty": {"confidence": uncertainty.CONFIDENCE,
+                                    "not_quantified": list(uncertainty.NOT_QUANTIFIED)}})
+
+
+def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night,
+                 night, day, temperature, interval, config):
+    """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals."""
+    index = timeseries.index
+    nee_measured = timeseries["nee_measured"].to_numpy(dtype=float)
+    measured = np.isfinite(nee_measured)
+    noise = np.where(measured, sigma, 0.0)
+    gap_errors = uncertainty.artificial_gap_errors(
+        nee_measured, noise, is_night,
+        lambda values: _fill_nee(values, conditions, index, is_night, config)["value"],
+        seed=config.seed)
+    gapfill_model = uncertainty.gapfill_error_model(gap_errors)
+    runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
+                                "reco_nighttime": n.reco, "gpp_daytime": d.gpp,
+                                "reco_daytime": d.reco}, index=index)
+            for name, (_, _, filled, n, d) in outcomes.items()}
+    inputs = uncertainty.record_inputs(
+        index, runs["central"], runs if len(runs) > 1 else {}, measured, noise, is_night,
+        timeseries[f"{temperature}_filled"].to_numpy(dtype=float), night, day.parameters,
+        gapfill_model, rref_window_days=config.rref_window_days)
+    percentiles = config.ustar_scenarios
+    tables = []
+    for table, keys in ((daily, index.normalize()),
+                        (monthly, index.to_period("M").to_timestamp())):
+        parts = uncertainty.period_uncertainty(inputs, keys, interval,
+                                               ustar_percentiles=percentiles)
+        sigmas = [c for c in parts.columns if c.endswith("_sigma")]
+        tables.append(table.join(parts[sigmas].reindex(table.index)))
+    parts = uncertainty.period_uncertainty(inputs, index.year.to_numpy(), interval,
+                                           ustar_percentiles=percentiles)
+    random = uncertainty.monte_carlo_sums(noise, index, interval,
+                                          draws=config.random_error_draws, seed=config.seed)
+    annual = annual.join(uncertainty.uncertainty_budget(annual, random, parts))
+    return tables[0], tables[1], annual, gapfill_model
 
 
 def _scenario_spread(annual, outcomes, index, interval) -> pd.DataFrame:

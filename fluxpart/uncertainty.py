@@ -57,16 +57,28 @@ from .errors import (
 
 __all__ = [
     "ANNUAL_COLUMNS",
+    "CONFIDENCE",
     "MODEL_COLUMNS",
+    "NOT_QUANTIFIED",
     "RandomErrorModel",
+    "UncertaintyInputs",
+    "artificial_gap_errors",
     "carbon_accounting_units",
     "draw_random_errors",
+    "e0_sensitivity",
+    "e0_sigma",
+    "gap_runs",
+    "gapfill_error_model",
     "monte_carlo_sums",
     "paired_differences",
+    "period_uncertainty",
     "random_error_model",
+    "record_inputs",
     "record_random_error",
     "timeseries_random_error",
     "uncertainty_budget",
+    "ustar_sigma",
+    "window_membership",
 ]
 
 #: Pairing criteria of the paired-observation method. Richardson et al. (2006)
@@ -93,50 +105,96 @@ _BLOCK_ELEMENTS = 1 << 21
 _T_HA_PER_G_M2 = 1e4 / 1e6
 _MINUTES_PER_DAY = 1440
 _CLASSES = ("uptake", "release")
+#: Artificial gaps: rounds (one extra fill each) and share of measured records held
+#: out per round; fewest scored records of a class for its error model. Our choices:
+#: three rounds give hundreds of scored gaps in a year; holding out a tenth keeps
+#: the donors nearly as plentiful as in the real fill.
+_GAP_ROUNDS = 3
+_GAP_SHARE = 0.1
+_GAP_MIN_RECORDS = 50
+#: Confidence level of the stated intervals (DESIGN.md §4.1).
+CONFIDENCE = 0.95
+#: What the stated intervals do not contain (column descriptions, manifest, README).
+NOT_QUANTIFIED = (
+    "systematic measurement errors: energy-balance non-closure, advection and storage not "
+    "removed by the u* filter, footprint heterogeneity, gas-analyser calibration",
+    "model-structure error shared by both partitioning methods (both rest on a Lloyd–Taylor "
+    "temperature response)",
+    "errors of the meteorological drivers and of their gap filling",
+    "lateral carbon fluxes and harvest export (outside the tower's view)",
+)
 _FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
 
 _CARBON = "g C m-2"
 _FLUX = "µmol m-2 s-1"
 
-#: Unit and description of every column :func:`uncertainty_budget` and
-#: :func:`carbon_accounting_units` add to the annual table.
+#: Unit and description of every column :func:`uncertainty_budget`,
+#: :func:`period_uncertainty` and :func:`carbon_accounting_units` add to the budget
+#: tables. Every ``_uncertainty_`` and ``_sigma`` column is one standard deviation.
+_NOT_COVERED = "not included: " + "; ".join(NOT_QUANTIFIED)
 ANNUAL_COLUMNS: dict[str, tuple[str, str]] = {
-    "nee_uncertainty_random": (_CARBON, "random error of the annual NEE sum: standard deviation "
-                               "of the Monte Carlo sums of Laplace record errors"),
+    "nee_uncertainty_random": (_CARBON, "1 sigma: random error of the NEE sum over the measured "
+                               "records (Laplace record errors, Monte Carlo per year, analytic "
+                               "per day and month); filled records are in the gap-filling part"),
     "nee_uncertainty_random_percentile_2_5": (_CARBON, "2.5th percentile of the Monte Carlo "
-                                              "random error of the annual NEE sum (add to nee "
-                                              "for the lower end of a 95 % interval)"),
+                                              "random error of the annual NEE sum (measured "
+                                              "records)"),
     "nee_uncertainty_random_percentile_97_5": (_CARBON, "97.5th percentile of the Monte Carlo "
-                                               "random error of the annual NEE sum (add to nee "
-                                               "for the upper end of a 95 % interval)"),
-    "nee_uncertainty_random_analytic": (_CARBON, "random error of the annual NEE sum from the "
-                                        "record variances, assuming independent errors"),
-    "nee_uncertainty_ustar": (_CARBON, "half the range of annual NEE over the u* threshold "
-                              "scenarios"),
-    "nee_uncertainty_total": (_CARBON, "root sum of squares of the random and u* parts of NEE "
-                              "(systematic errors not included)"),
-    "gpp_nighttime_uncertainty_random": (_CARBON, "random error of nighttime GPP = random error "
-                                         "of NEE (GPP = Reco - NEE)"),
-    "gpp_uncertainty_partitioning": (_CARBON, "half the absolute difference of daytime and "
-                                     "nighttime annual GPP"),
-    "reco_uncertainty_partitioning": (_CARBON, "half the absolute difference of daytime and "
-                                      "nighttime annual Reco"),
+                                               "random error of the annual NEE sum (measured "
+                                               "records)"),
+    "nee_uncertainty_random_analytic": (_CARBON, "random error of the annual NEE sum over the "
+                                        "measured records from their variances (independent "
+                                        "errors)"),
+    "nee_uncertainty_gapfill": (_CARBON, "1 sigma: gap-filling error of the NEE sum, from "
+                                "artificial gaps of the site's own gap lengths scored on its "
+                                "measured records: independent and within-gap correlated parts "
+                                "plus the systematic fill bias (Richardson & Hollinger 2007)"),
+    "nee_uncertainty_gapfill_bias": (_CARBON, "systematic gap-filling bias of the NEE sum estimated on "
+                         "artificial gaps (fill minus measured; not subtracted from nee, "
+                         "counted in nee_uncertainty_gapfill)"),
+    "gpp_nighttime_uncertainty_random": (_CARBON, "1 sigma: random error of nighttime GPP = "
+                                         "random error of NEE (GPP = Reco - NEE)"),
+    "gpp_uncertainty_partitioning": (_CARBON, "1 sigma: structural error of GPP estimated as "
+                                     "|daytime - nighttime| / sqrt(2); in the totals of both "
+                                     "methods"),
+    "reco_uncertainty_partitioning": (_CARBON, "1 sigma: structural error of Reco estimated as "
+                                      "|daytime - nighttime| / sqrt(2); in the totals of both "
+                                      "methods"),
     "uncertainty_parts_missing": ("", "parts of the budget that could not be estimated this "
-                                  "year (left out of the totals)"),
+                                  "year (left out of the totals and intervals)"),
     "net_uptake_t_co2_per_ha": ("t CO2 ha-1", "net CO2 uptake in the year, positive = uptake "
                                 "(= -NEE x 44.009/12.011 x 0.01)"),
-    "net_uptake_t_co2_per_ha_uncertainty": ("t CO2 ha-1", "total uncertainty of the net uptake "
-                                            "(nee_uncertainty_total converted)"),
-    "net_uptake_t_co2_per_ha_uncertainty_random": ("t CO2 ha-1", "random part of the "
+    "net_uptake_t_co2_per_ha_uncertainty": ("t CO2 ha-1", "1 sigma: total uncertainty of the "
+                                            "net uptake (nee_uncertainty_total converted)"),
+    "net_uptake_t_co2_per_ha_uncertainty_random": ("t CO2 ha-1", "1 sigma: random part of the "
                                                    "uncertainty of the net uptake"),
 }
-for _flux in _FLUXES[1:]:
+_TOTAL_PARTS = {
+    "nee": "random, gap filling and u* threshold",
+    "gpp_nighttime": "random, gap filling, u* threshold, fitted parameters and partitioning",
+    "reco_nighttime": "u* threshold, fitted parameters (E0, Rref) and partitioning",
+    "gpp_daytime": "u* threshold, fitted parameters (Rref of the windows) and partitioning",
+    "reco_daytime": "u* threshold, fitted parameters (Rref of the windows) and partitioning",
+}
+for _flux in _FLUXES:
     ANNUAL_COLUMNS[f"{_flux}_uncertainty_ustar"] = (
-        _CARBON, f"half the range of annual {_flux} over the u* threshold scenarios")
+        _CARBON, f"1 sigma: u* threshold part of {_flux}: range over the u* scenario runs / "
+        "span of their standard-normal quantiles")
     ANNUAL_COLUMNS[f"{_flux}_uncertainty_total"] = (
-        _CARBON, f"root sum of squares of the parts of {_flux}: "
-        + ("random, u* and partitioning" if _flux == "gpp_nighttime" else
-           "u* and partitioning (no random part: a model output)"))
+        _CARBON, f"1 sigma: root sum of squares of the parts of {_flux} ({_TOTAL_PARTS[_flux]})"
+        f"; {_NOT_COVERED}")
+    ANNUAL_COLUMNS[f"{_flux}_sigma"] = (
+        _CARBON, f"1 sigma: total uncertainty of the {_flux} sum of the period "
+        f"({_TOTAL_PARTS[_flux]}); {_NOT_COVERED}")
+    ANNUAL_COLUMNS[f"{_flux}_ci95_low"] = (
+        _CARBON, f"lower end of the stated 95 % interval of the annual {_flux} sum "
+        f"(sum - 1.96 x {_flux}_uncertainty_total); {_NOT_COVERED}")
+    ANNUAL_COLUMNS[f"{_flux}_ci95_high"] = (
+        _CARBON, f"upper end of the stated 95 % interval of the annual {_flux} sum "
+        f"(sum + 1.96 x {_flux}_uncertainty_total); {_NOT_COVERED}")
+for _flux in _FLUXES[1:]:
+    ANNUAL_COLUMNS[f"{_flux}_uncertainty_parameters"] = (
+        _CARBON, f"1 sigma: fitted-parameter part of {_flux}")
 del _flux
 
 #: Unit and description of the columns of :meth:`RandomErrorModel.table` and
@@ -154,6 +212,16 @@ MODEL_COLUMNS: dict[str, tuple[str, str]] = {
     "mean_abs_nee": (_FLUX, "mean |NEE| of the pairs in the bin (pair means)"),
     "sigma": (_FLUX, "standard deviation of the pair differences / sqrt(2)"),
     "laplace_scale": (_FLUX, "Laplace scale: mean |pair difference| / sqrt(2)"),
+    "record_class": ("", "night or day records (gap-filling error model)"),
+    "bias": (_FLUX, "gap filling: mean error per filled record on artificial gaps (fill minus "
+             "measured)"),
+    "bias_se": (_FLUX, "standard error of the gap-filling bias"),
+    "independent_variance": ("umol2 m-4 s-2", "gap filling: error variance per record "
+                             "independent of its neighbours (a in a n + b n^2)"),
+    "correlated_variance": ("umol2 m-4 s-2", "gap filling: error variance shared by every "
+                            "record of a gap (b in a n + b n^2)"),
+    "gaps": ("1", "artificial gaps scored"),
+    "records": ("1", "held-out measured records scored"),
 }
 
 
@@ -226,6 +294,14 @@ def _interval_minutes(index) -> int:
                            f"day; found a step of {steps[row - 1] / 60:g} minutes at row {row} "
                            f"({index[row]})")
     return int(steps[0] // 60)
+
+
+def _quality_codes(column: pd.Series) -> np.ndarray:
+    """Fill-quality codes as numbers, from int codes or their text labels."""
+    if pd.api.types.is_numeric_dtype(column.dtype):
+        return column.to_numpy(dtype=float)
+    labels = {"unfilled": -1.0, "measured": 0.0, "A": 1.0, "B": 2.0, "C": 3.0}
+    return column.astype(object).map(labels).to_numpy(dtype=float)
 
 
 def _values(values, name: str, n: int) -> np.ndarray:
@@ -520,7 +596,7 @@ def timeseries_random_error(timeseries: pd.DataFrame, **settings):
     if unknown:
         raise FluxpartError(f"timeseries_random_error: unknown setting(s) {sorted(unknown)}; "
                             f"valid: {sorted(pair_keys | model_keys | record_keys)}")
-    drivers = {d: np.where(timeseries[f"{d}_fill_quality"].to_numpy() == 0,
+    drivers = {d: np.where(_quality_codes(timeseries[f"{d}_fill_quality"]) == 0,
                            timeseries[f"{d}_filled"].to_numpy(dtype=float), np.nan)
                for d in ("rg", "tair", "vpd")}
     pairs = paired_differences(timeseries.index, timeseries["nee_measured"].to_numpy(dtype=float),
@@ -529,7 +605,8 @@ def timeseries_random_error(timeseries: pd.DataFrame, **settings):
     model = random_error_model(pairs, **{k: v for k, v in settings.items() if k in model_keys})
     sigma = record_random_error(
         model, timeseries["nee_filled"].to_numpy(dtype=float),
-        timeseries["nee_fill_quality"].to_numpy(), timeseries["nee_fill_std"].to_numpy(),
+        _quality_codes(timeseries["nee_fill_quality"]),
+        timeseries["nee_fill_std"].to_numpy(),
         timeseries["nee_fill_count"].to_numpy(),
         **{k: v for k, v in settings.items() if k in record_keys})
     return sigma, model
@@ -638,48 +715,654 @@ def monte_carlo_sums(sigma, index, interval_minutes, *, draws=_DRAWS, seed=0) ->
     return out
 
 
-def _half_range(annual: pd.DataFrame, flux: str) -> pd.Series:
-    column = f"{flux}_ustar_spread"
-    if column in annual.columns:
-        return annual[column].astype(float) / 2.0
-    return pd.Series(np.nan, index=annual.index)
+# --------------------------------------------------------------------------- gap filling
 
-
-def _partitioning(annual: pd.DataFrame, kind: str) -> pd.Series:
-    column = f"{kind}_method_difference"
-    if column in annual.columns:
-        return annual[column].astype(float).abs() / 2.0
-    day, night = f"{kind}_daytime", f"{kind}_nighttime"
-    if day in annual.columns and night in annual.columns:
-        return (annual[day] - annual[night]).astype(float).abs() / 2.0
-    return pd.Series(np.nan, index=annual.index)
-
-
-def _root_sum_of_squares(*parts: pd.Series) -> pd.Series:
-    table = pd.concat(parts, axis=1)
-    total = np.sqrt(np.square(table).sum(axis=1, min_count=1))
-    return total
-
-
-def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame) -> pd.DataFrame:
-    """Combine the random, u* threshold and partitioning parts of the annual sums.
+def gap_runs(missing) -> tuple[np.ndarray, np.ndarray]:
+    """Start positions and lengths of the runs of True in a boolean array.
 
     Parameters
     ----------
-    annual : pandas.DataFrame
-        The pipeline's annual table, indexed by year: ``nee`` and the partitioned
-        sums [g C m-2], the u* scenario spreads ``<flux>_ustar_spread`` and the
-        method differences ``gpp_method_difference``, ``reco_method_difference``
-        [g C m-2] where available.
-    random : pandas.DataFrame
-        From :func:`monte_carlo_sums`, indexed by year.
+    missing : array_like of bool
+        True where a record is missing.
+
+    Returns
+    -------
+    starts, lengths : numpy.ndarray of int
+        Position of the first record of each run and its length [records].
+    """
+    missing = np.asarray(missing, dtype=bool)
+    edges = np.diff(np.concatenate([[0], missing.astype(np.int8), [0]]))
+    starts = np.flatnonzero(edges == 1)
+    return starts, np.flatnonzero(edges == -1) - starts
+
+
+def _run_ids(mask) -> np.ndarray:
+    """Number of the run of True each record belongs to (0, 1, ...); -1 outside runs."""
+    mask = np.asarray(mask, dtype=bool)
+    starts = np.diff(np.concatenate([[0], mask.astype(np.int8)])) == 1
+    return np.where(mask, np.cumsum(starts) - 1, -1)
+
+
+def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_GAP_ROUNDS,
+                          share=_GAP_SHARE, seed=0) -> pd.DataFrame:
+    """Score gap filling on artificial gaps cut into the site's own measured records.
+
+    Parameters
+    ----------
+    nee_measured : array_like
+        NEE after screening and the u* filter [µmol m-2 s-1], NaN where missing.
+    noise_sigma : array_like
+        Random error (standard deviation) of each measured record [µmol m-2 s-1]
+        (:func:`record_random_error`); its variance is removed from the scores.
+    is_night : array_like of bool
+        Night records.
+    fill : callable
+        ``fill(values) -> filled values``: the pipeline's own NEE gap filling of a
+        series with NaN gaps (same method and settings as the real fill).
+    rounds : int, optional
+        Independent sets of artificial gaps, one fill each; default 3 (our choice).
+    share : float, optional
+        Share of the measured records held out per round; default 0.1 (our choice:
+        small enough that donors stay nearly as plentiful as in the real fill).
+    seed : int, optional
+        Seed of the gap placement.
 
     Returns
     -------
     pandas.DataFrame
-        Indexed like `annual`, the columns of :data:`ANNUAL_COLUMNS` except the
-        t CO2 ha-1 ones [g C m-2]; ``uncertainty_parts_missing`` names parts that
-        could not be estimated in a year.
+        One row per artificial gap and record class (``night``, ``day``): ``round``,
+        ``gap``, ``records`` (held-out measured records of the class), ``length``
+        (records in the whole gap), ``error_sum`` (Σ fill − measured
+        [µmol m-2 s-1]) and ``noise_variance`` (Σ σ² of the measured values
+        [(µmol m-2 s-1)²]).
+
+    Notes
+    -----
+    The gap lengths are drawn from the site's own real gaps (each real gap equally
+    likely), placed at random starts; only the measured records inside an
+    artificial gap are scored. The fill of a held-out record differs from its
+    measured value by the fill error minus the measurement's random error; the
+    latter is independent of the fill, so its variance is subtracted when the
+    error model is fitted (:func:`gapfill_error_model`). Falge et al. (2001)
+    and Moffat et al. (2007) scored gap-filling methods in this way on
+    artificial gaps of several lengths.
+
+    References
+    ----------
+    Falge, E. et al. (2001). Agric. For. Meteorol. 107, 43–69.
+    Moffat, A. M. et al. (2007). Agric. For. Meteorol. 147, 209–232.
+    """
+    nee = np.asarray(nee_measured, dtype=float)
+    n = nee.size
+    noise = _values(noise_sigma, "noise_sigma", n)
+    night = np.asarray(is_night, dtype=bool)
+    measured = np.isfinite(nee)
+    _, real_lengths = gap_runs(~measured)
+    columns = ["round", "gap", "record_class", "records", "length", "error_sum",
+               "noise_variance"]
+    if real_lengths.size == 0 or measured.sum() < 10:
+        return pd.DataFrame(columns=columns)
+    rng = np.random.default_rng([int(seed), 2007])
+    target = share * measured.sum()
+    rows = []
+    for number in range(int(rounds)):
+        mask = np.zeros(n, dtype=bool)
+        while (mask & measured).sum() < target:
+            lengths = rng.choice(real_lengths, size=64)
+            starts = rng.integers(0, n, size=64)
+            for start, length in zip(starts, lengths, strict=True):
+                mask[start:start + length] = True
+        held = mask & measured
+        filled = np.asarray(fill(np.where(mask, np.nan, nee)), dtype=float)
+        error = np.where(held, filled - nee, 0.0)
+        gap_id = _run_ids(mask)
+        lengths = np.bincount(gap_id[mask])
+        for name, in_class in (("night", night), ("day", ~night)):
+            scored = held & in_class & np.isfinite(filled)
+            ids = gap_id[scored]
+            if ids.size == 0:
+                continue
+            count = np.bincount(ids, minlength=lengths.size)
+            keep = np.flatnonzero(count)
+            rows.append(pd.DataFrame({
+                "round": number, "gap": keep, "record_class": name,
+                "records": count[keep],
+                "length": lengths[keep],
+                "error_sum": np.bincount(ids, weights=error[scored],
+                                         minlength=lengths.size)[keep],
+                "noise_variance": np.bincount(ids, weights=np.square(noise[scored]),
+                                              minlength=lengths.size)[keep]}))
+    if not rows:
+        return pd.DataFrame(columns=columns)
+    return pd.concat(rows, ignore_index=True)[columns]
+
+
+def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
+    """Fit the error of gap-filled sums from artificial-gap scores.
+
+    Parameters
+    ----------
+    errors : pandas.DataFrame
+        From :func:`artificial_gap_errors`.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Indexed by ``record_class`` (``night``, ``day``): ``bias`` (mean fill
+        error per record [µmol m-2 s-1]), ``bias_se`` (its standard error),
+        ``independent_variance`` a [(µmol m-2 s-1)²], ``correlated_variance`` b
+        [(µmol m-2 s-1)²], ``gaps`` and ``records`` scored. A class without scores
+        gets NaN.
+
+    Notes
+    -----
+    For a gap with n scored records of a class, the fill error summed over the
+    gap, after removing the mean bias, has variance a·n + b·n²: a is the part of
+    each record's fill error that is independent of its neighbours, b the part
+    shared by every record of the gap (the error of the conditions the donors
+    represent: weather, phenology, a drifting respiration level). Its share
+    grows with the gap's length, which gives the growth of the error correlation
+    with gap length described by Richardson & Hollinger (2007). a and b are
+    fitted by non-negative least squares to ``(S − bias·n)² − Σσ²`` divided by
+    n (so that long and short gaps weigh alike), S being the scored error sum
+    and Σσ² the measurement noise of the held-out values. ``bias`` is
+    ``ΣS / Σn``; its standard error ``sqrt(Σ(S − bias·n)²) / Σn`` treats gaps as
+    independent.
+
+    References
+    ----------
+    Richardson, A. D. & Hollinger, D. Y. (2007). A method to estimate the
+    additional uncertainty in gap-filled NEE resulting from long gaps in the
+    CO2 flux record. Agric. For. Meteorol. 147, 199–208.
+    doi:10.1016/j.agrformet.2007.06.004
+    """
+    from scipy.optimize import nnls
+
+    needed = {"record_class", "records", "error_sum", "noise_variance"}
+    if not needed <= set(errors.columns):
+        raise MissingColumnError(f"gapfill_error_model: errors lack {sorted(needed - set(errors.columns))}; "
+                                 "build them with artificial_gap_errors")
+    rows = {}
+    for name in ("night", "day"):
+        part = errors[errors["record_class"] == name]
+        count = part["records"].to_numpy(dtype=float)
+        total = part["error_sum"].to_numpy(dtype=float)
+        if count.sum() < _GAP_MIN_RECORDS or len(part) < 3:
+            rows[name] = {"bias": np.nan, "bias_se": np.nan, "independent_variance": np.nan,
+                          "correlated_variance": np.nan, "gaps": len(part),
+                          "records": int(count.sum())}
+            continue
+        bias = total.sum() / count.sum()
+        centred = total - bias * count
+        excess = np.square(centred) - part["noise_variance"].to_numpy(dtype=float)
+        (a, b), _ = nnls(np.column_stack([np.ones_like(count), count]), excess / count)
+        rows[name] = {"bias": float(bias),
+                      "bias_se": float(np.sqrt(np.square(centred).sum()) / count.sum()),
+                      "independent_variance": float(a), "correlated_variance": float(b),
+                      "gaps": len(part), "records": int(count.sum())}
+    table = pd.DataFrame.from_dict(rows, orient="index")
+    table.index.name = "record_class"
+    return table
+
+
+# --------------------------------------------------------------------------- parameters
+
+def e0_sensitivity(reco, temperature, is_night, e0, e0_sigma, block_keys) -> np.ndarray:
+    """Change of each record's Lloyd–Taylor Reco when E0 is one standard error higher.
+
+    Parameters
+    ----------
+    reco : array_like
+        Modelled Reco [µmol m-2 s-1].
+    temperature : array_like
+        Driving temperature [°C].
+    is_night : array_like of bool
+        Night records (those the reference respiration is fitted to).
+    e0, e0_sigma : array_like
+        E0 applied to each record and its standard error [K].
+    block_keys : array_like
+        Label of the block within which the reference respiration is refitted
+        (e.g. the 4-day window); night sums are kept equal per block.
+
+    Returns
+    -------
+    numpy.ndarray
+        ΔReco per record [µmol m-2 s-1] (0 where an input is NaN).
+
+    Notes
+    -----
+    With E0 → E0 + δ each record scales by exp(δ (1/(Tref − T0) − 1/(T − T0)))
+    (Lloyd & Taylor 1994, T0 = 227.13 K, Tref = 283.15 K). The reference rate is
+    refitted to the night data, which keeps the night-time respiration of each
+    block nearly unchanged; so the scaled series is renormalised per block to the
+    same night sum. What remains is the extrapolation from night to day
+    temperatures, the part of E0's error that reaches the annual sum.
+    """
+    from .constants import LLOYD_TAYLOR_T0_KELVIN, LLOYD_TAYLOR_TREF_KELVIN
+
+    reco = np.asarray(reco, dtype=float)
+    kelvin = np.asarray(temperature, dtype=float) + 273.15
+    delta = np.asarray(e0_sigma, dtype=float)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        scale = np.exp(delta * (1.0 / (LLOYD_TAYLOR_TREF_KELVIN - LLOYD_TAYLOR_T0_KELVIN)
+                                - 1.0 / np.maximum(kelvin - LLOYD_TAYLOR_T0_KELVIN, 1.0)))
+    shifted = reco * scale
+    usable = np.isfinite(shifted) & np.isfinite(reco)
+    night = np.asarray(is_night, dtype=bool) & usable
+    keys = pd.Index(np.asarray(block_keys))
+    frame = pd.DataFrame({"old": np.where(night, reco, 0.0), "new": np.where(night, shifted, 0.0)})
+    sums = frame.groupby(keys.to_numpy()).sum()
+    ratio = (sums["old"] / sums["new"]).where(sums["new"] > 0, 1.0)
+    factor = ratio.reindex(keys.to_numpy()).to_numpy()
+    factor = np.where(np.isfinite(factor), factor, 1.0)
+    return np.where(usable, shifted * factor - reco, 0.0)
+
+
+def e0_sigma(e0_annual: pd.DataFrame, e0_windows: pd.DataFrame) -> pd.Series:
+    """Standard error of each year's E0 [K], from its fit and from the windows' spread.
+
+    Parameters
+    ----------
+    e0_annual : pandas.DataFrame
+        Per year (index): ``e0``, ``e0_se``, ``windows_used``
+        (:func:`fluxpart.partition.nighttime.annual_e0`).
+    e0_windows : pandas.DataFrame
+        Every window fit: ``year``, ``e0``, ``accepted``.
+
+    Returns
+    -------
+    pandas.Series
+        Per year: the larger of ``e0_se`` and the standard deviation of the
+        year's accepted window E0 values divided by √windows_used [K]. NaN where
+        neither is known (a fall-back E0).
+
+    Notes
+    -----
+    The year's E0 is a mean of a few short-window fits. The fits' own standard
+    errors ignore that the short-term temperature sensitivity changes through
+    the year; the spread of the accepted windows measures that, and its
+    standard error of the mean is the uncertainty of the value applied to the
+    whole year.
+    """
+    se = e0_annual["e0_se"].astype(float) if "e0_se" in e0_annual.columns else \
+        pd.Series(np.nan, index=e0_annual.index)
+    if e0_windows is None or not {"year", "e0", "accepted"} <= set(e0_windows.columns):
+        return se
+    accepted = e0_windows[e0_windows["accepted"].astype(bool)]
+    spread = accepted.groupby("year")["e0"].std(ddof=1).reindex(e0_annual.index)
+    used = e0_annual["windows_used"].astype(float).clip(lower=1) \
+        if "windows_used" in e0_annual.columns else 1.0
+    return pd.concat([se, spread / np.sqrt(used)], axis=1).max(axis=1, skipna=True)
+
+
+def window_membership(index, windows: pd.DataFrame, value="rref", se="rref_se") -> tuple:
+    """Nearest window of each record and the window's relative standard error.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Record times.
+    windows : pandas.DataFrame
+        Fitted windows with ``window_start``, ``window_end``, the parameter
+        `value` and its standard error `se` (rejected windows, if an ``accepted``
+        column says so, are left out).
+
+    Returns
+    -------
+    window : numpy.ndarray of int
+        Position of the nearest retained window centre per record (-1 if none).
+    relative_se : numpy.ndarray
+        ``se / value`` of that window [1]. Where a window's standard error is not
+        finite (a parameter at a bound or fixed), the median relative standard
+        error of the site's other windows stands in.
+    """
+    needed = {"window_start", "window_end", value, se}
+    n = len(index)
+    if windows is None or not needed <= set(windows.columns) or windows.empty:
+        return np.full(n, -1), np.full(n, np.nan)
+    kept = windows
+    if "accepted" in kept.columns:
+        kept = kept[kept["accepted"].astype(bool)]
+    kept = kept[np.isfinite(kept[value].to_numpy(dtype=float))
+                & (kept[value].to_numpy(dtype=float) > 0)]
+    if kept.empty:
+        return np.full(n, -1), np.full(n, np.nan)
+    starts = pd.DatetimeIndex(kept["window_start"]).asi8
+    ends = pd.DatetimeIndex(kept["window_end"]).asi8
+    centres = (starts + ends) / 2.0
+    order = np.argsort(centres, kind="stable")
+    centres = centres[order]
+    relative = (kept[se].to_numpy(dtype=float) / kept[value].to_numpy(dtype=float))[order]
+    typical = np.nanmedian(relative) if np.isfinite(relative).any() else np.nan
+    relative = np.where(np.isfinite(relative), relative, typical)
+    times = index.asi8.astype(float)
+    right = np.clip(np.searchsorted(centres, times), 0, centres.size - 1)
+    left = np.clip(right - 1, 0, centres.size - 1)
+    nearest = np.where(np.abs(times - centres[left]) <= np.abs(centres[right] - times), left,
+                       right)
+    return nearest, relative[nearest]
+
+
+# --------------------------------------------------------------------------- combination
+
+def _grouped_square(keys, groups, values) -> pd.Series:
+    """Σ over groups of (Σ values of the group within the period)², per period key."""
+    values = np.asarray(values, dtype=float)
+    groups = np.asarray(groups)
+    use = np.isfinite(values) & (groups >= 0) & (values != 0)
+    if not use.any():
+        return pd.Series(0.0, index=pd.Index(pd.unique(np.asarray(keys))))
+    frame = pd.DataFrame({"key": np.asarray(keys)[use], "group": groups[use],
+                          "value": values[use]})
+    inner = frame.groupby(["key", "group"], sort=False)["value"].sum()
+    return np.square(inner).groupby(level=0).sum()
+
+
+def ustar_sigma(sums: pd.DataFrame, percentiles) -> pd.Series:
+    """1-sigma u* threshold uncertainty of period sums from the scenario runs.
+
+    Parameters
+    ----------
+    sums : pandas.DataFrame
+        One column per run: ``central`` and ``ustar_pXX`` (sum with the threshold
+        at bootstrap percentile XX) [g C m-2], one row per period.
+    percentiles : sequence of int
+        The scenario percentiles (for their standard-normal quantiles).
+
+    Returns
+    -------
+    pandas.Series
+        ``(max − min over runs) / (z_max − z_min)`` [g C m-2], z being the
+        standard-normal quantile of each run's percentile (central run: 0). For
+        16/50/84 percentiles this is half the 16–84 range, a standard deviation
+        if the sum is normal in the threshold's distribution; for 5/50/95 it is
+        the 5–95 range over 3.29. The range over all runs is used because the
+        sum need not be monotonic in the threshold. NaN without scenarios.
+    """
+    from scipy.stats import norm
+
+    z = {"central": 0.0}
+    z.update({f"ustar_p{p:02d}": float(norm.ppf(p / 100.0)) for p in percentiles})
+    runs = [c for c in sums.columns if c in z]
+    spans = [z[c] for c in runs]
+    if len(runs) < 2 or max(spans) - min(spans) <= 0:
+        return pd.Series(np.nan, index=sums.index)
+    table = sums[runs]
+    return (table.max(axis=1) - table.min(axis=1)) / (max(spans) - min(spans))
+
+
+@dataclass(frozen=True)
+class UncertaintyInputs:
+    """Per-record inputs of :func:`period_uncertainty` (all arrays on one time axis).
+
+    Attributes
+    ----------
+    measured : numpy.ndarray of bool
+        NEE measured (not filled).
+    noise_sigma : numpy.ndarray
+        Random error of measured NEE [µmol m-2 s-1] (NaN or 0 where filled).
+    is_night : numpy.ndarray of bool
+    fluxes : pandas.DataFrame
+        Central per-record ``nee``, ``gpp_nighttime``, ``reco_nighttime``,
+        ``gpp_daytime``, ``reco_daytime`` [µmol m-2 s-1].
+    runs : dict of str to pandas.DataFrame
+        Per-record fluxes of the u* scenario runs, by run name (may be empty).
+    gapfill_model : pandas.DataFrame or None
+        From :func:`gapfill_error_model`.
+    e0_delta : numpy.ndarray
+        ΔReco (nighttime) per record for E0 + 1 standard error (:func:`e0_sensitivity`).
+    night_window, night_relative_se : numpy.ndarray
+        Nighttime Rref window of each record and its relative standard error.
+    day_window, day_relative_se : numpy.ndarray
+        Daytime window of each record and the relative standard error of its
+        reference respiration.
+    """
+
+    measured: np.ndarray
+    noise_sigma: np.ndarray
+    is_night: np.ndarray
+    fluxes: pd.DataFrame
+    runs: dict
+    gapfill_model: pd.DataFrame | None
+    e0_delta: np.ndarray
+    night_window: np.ndarray
+    night_relative_se: np.ndarray
+    day_window: np.ndarray
+    day_relative_se: np.ndarray
+
+
+def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma, is_night,
+                  temperature, nighttime_result, daytime_parameters, gapfill_model, *,
+                  rref_window_days=4.0) -> UncertaintyInputs:
+    """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Record times.
+    fluxes : pandas.DataFrame
+        Central per-record ``nee``, ``gpp_nighttime``, ``reco_nighttime``,
+        ``gpp_daytime``, ``reco_daytime`` [µmol m-2 s-1].
+    runs : dict
+        Per-record flux frames of the u* scenario runs (``central`` included).
+    measured : array_like of bool
+        NEE measured (after the u* filter).
+    noise_sigma : array_like
+        Random error of each measured record [µmol m-2 s-1].
+    is_night : array_like of bool
+    temperature : array_like
+        Gap-filled respiration driver [°C].
+    nighttime_result : NighttimeResult
+        With ``e0``, ``e0_annual``, ``e0_windows`` and ``rref_windows``.
+    daytime_parameters : pandas.DataFrame
+        The daytime windows (``window_start``, ``window_end``, ``rref``,
+        ``rref_se``, ``accepted``).
+    gapfill_model : pandas.DataFrame or None
+        From :func:`gapfill_error_model`.
+    rref_window_days : float
+        Length of the nighttime Rref windows [days] (blocks of the E0 sensitivity).
+
+    Returns
+    -------
+    UncertaintyInputs
+    """
+    years = pd.Index(index.year)
+    sigma_e0 = e0_sigma(nighttime_result.e0_annual, nighttime_result.e0_windows)
+    per_record_sigma = sigma_e0.reindex(years).to_numpy(dtype=float)
+    elapsed = ((index - index[0]) / pd.Timedelta(days=1)).to_numpy()
+    blocks = np.floor(elapsed / float(rref_window_days)).astype(np.int64)
+    delta = e0_sensitivity(fluxes["reco_nighttime"].to_numpy(dtype=float), temperature,
+                           is_night, nighttime_result.e0, np.nan_to_num(per_record_sigma),
+                           blocks)
+    night_window, night_se = window_membership(index, nighttime_result.rref_windows)
+    day_window, day_se = window_membership(index, daytime_parameters)
+    return UncertaintyInputs(
+        measured=np.asarray(measured, dtype=bool), noise_sigma=np.asarray(noise_sigma, float),
+        is_night=np.asarray(is_night, dtype=bool), fluxes=fluxes,
+        runs={name: frame for name, frame in runs.items()}, gapfill_model=gapfill_model,
+        e0_delta=delta, night_window=night_window, night_relative_se=night_se,
+        day_window=day_window, day_relative_se=day_se)
+
+
+def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
+                       ustar_percentiles=(16, 50, 84)) -> pd.DataFrame:
+    """1-sigma parts and total uncertainty of every flux summed per period.
+
+    Parameters
+    ----------
+    inputs : UncertaintyInputs
+        Per-record inputs.
+    keys : array_like
+        Period label of each record (day, month start, year).
+    interval_minutes : int
+        Record length [min].
+    ustar_percentiles : sequence of int
+        Percentiles of the u* scenario runs.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Indexed by period: for NEE ``nee_uncertainty_random``,
+        ``nee_uncertainty_gapfill``, ``nee_uncertainty_gapfill_bias``; for every flux X
+        ``X_uncertainty_ustar``, ``X_uncertainty_total`` and ``X_sigma`` (= total);
+        for the partitioned fluxes ``X_uncertainty_parameters``; and
+        ``gpp_uncertainty_partitioning``, ``reco_uncertainty_partitioning``
+        [g C m-2], all one standard deviation.
+
+    Notes
+    -----
+    Parts, all stated as one standard deviation and combined as independent
+    (root sum of squares):
+
+    - random (NEE): √Σσ² of the measured records (Richardson et al. 2006). The
+      random error of filled records is part of the gap-filling term.
+    - gap filling (NEE): a·n + b·n² per real gap and record class
+      (:func:`gapfill_error_model`; within a period, n counts the gap's records
+      in it), plus the systematic fill bias: the mean artificial-gap error per
+      filled record times the filled records, and its standard error, each
+      fully correlated over the period. The bias is **not** subtracted from the
+      estimate; it widens the interval.
+    - u* threshold: :func:`ustar_sigma` of the scenario sums.
+    - fitted parameters: nighttime Reco: E0 + 1 s.e. (:func:`e0_sensitivity`,
+      fully correlated) and the relative standard error of each Rref window
+      (records of one window fully correlated, windows independent). Daytime
+      Reco: the same for the daytime windows' reference respiration. Daytime
+      GPP: the same Reco error over the daylight records, because the fitted
+      daytime NEE is held by the data, so an error of the respiration term is
+      an equal error of GPP. Nighttime GPP = Reco − NEE takes the parts of both.
+    - partitioning (structural): |daytime − nighttime| / √2 for GPP and for Reco,
+      added to both methods: if the two methods' errors are independent with a
+      common standard deviation s, their difference has standard deviation
+      s√2, and one observed difference estimates s as |d|/√2.
+
+    Not quantified: systematic errors of the measurement (energy-balance
+    closure, advection beyond the u* filter, storage, footprint, calibration)
+    and model-structure errors shared by both partitioning methods.
+    """
+    factor = _seconds_factor(int(interval_minutes))
+    keys = np.asarray(keys)
+    index = pd.Index(pd.unique(keys))
+    fluxes = inputs.fluxes
+    carbon = (fluxes * factor).groupby(keys).sum(min_count=1).reindex(index)
+    out = pd.DataFrame(index=index)
+
+    def per_period(values):
+        return pd.Series(np.asarray(values, dtype=float), index=keys).groupby(level=0).sum() \
+            .reindex(index).fillna(0.0)
+
+    def grouped(groups, values):
+        return _grouped_square(keys, groups, values).reindex(index).fillna(0.0)
+
+    measured = np.asarray(inputs.measured, dtype=bool)
+    night = np.asarray(inputs.is_night, dtype=bool)
+    nee_finite = np.isfinite(fluxes["nee"].to_numpy(dtype=float))
+    filled = ~measured & nee_finite
+    noise = np.where(measured, np.nan_to_num(np.asarray(inputs.noise_sigma, dtype=float)), 0.0)
+    random_var = per_period(np.square(noise)) * factor**2
+    out["nee_uncertainty_random"] = np.sqrt(random_var)
+
+    model = inputs.gapfill_model
+    gap_var = pd.Series(0.0, index=index)
+    bias = pd.Series(0.0, index=index)
+    gapfill_known = model is not None and not model[["bias", "independent_variance"]].isna().all().all()
+    if gapfill_known:
+        model = model.fillna(model.mean(numeric_only=True))   # a class without scores: the other's
+        klass = np.where(night, "night", "day")
+        pick = {name: model[name].reindex(klass).to_numpy(dtype=float)
+                for name in ("bias", "bias_se", "independent_variance", "correlated_variance")}
+        gap_id = _run_ids(filled)
+        independent = per_period(np.where(filled, pick["independent_variance"], 0.0))
+        correlated = grouped(gap_id, np.where(filled, np.sqrt(pick["correlated_variance"]), 0.0))
+        bias = per_period(np.where(filled, pick["bias"], 0.0)) * factor
+        bias_se = per_period(np.where(filled, pick["bias_se"], 0.0)) * factor
+        gap_var = (independent + correlated) * factor**2 + np.square(bias) + np.square(bias_se)
+    out["nee_uncertainty_gapfill"] = np.sqrt(gap_var) if gapfill_known else np.nan
+    out["nee_uncertainty_gapfill_bias"] = bias if gapfill_known else np.nan
+
+    run_sums = {name: (frame * factor).groupby(keys).sum(min_count=1).reindex(index)
+                for name, frame in inputs.runs.items()}
+    ustar = {}
+    for flux in _FLUXES:
+        if run_sums:
+            table = pd.DataFrame({name: s[flux] for name, s in run_sums.items()})
+            ustar[flux] = ustar_sigma(table, ustar_percentiles)
+        else:
+            ustar[flux] = pd.Series(np.nan, index=index)
+        out[f"{flux}_uncertainty_ustar"] = ustar[flux]
+
+    reco_night = fluxes["reco_nighttime"].to_numpy(dtype=float)
+    reco_day = fluxes["reco_daytime"].to_numpy(dtype=float)
+    daylight = fluxes["gpp_daytime"].to_numpy(dtype=float) > 0
+    e0_part = np.square(per_period(np.nan_to_num(inputs.e0_delta)) * factor)
+    night_rref = grouped(inputs.night_window, np.asarray(inputs.night_relative_se) * reco_night)
+    day_rref = grouped(inputs.day_window, np.asarray(inputs.day_relative_se) * reco_day)
+    day_rref_gpp = grouped(inputs.day_window, np.where(daylight, np.asarray(
+        inputs.day_relative_se) * reco_day, 0.0))
+    night_known = np.isfinite(inputs.night_relative_se).any()
+    day_known = np.isfinite(inputs.day_relative_se).any()
+    parameters = {
+        "reco_nighttime": np.sqrt(e0_part + night_rref * factor**2) if night_known else
+        np.sqrt(e0_part),
+        "reco_daytime": np.sqrt(day_rref) * factor if day_known else
+        pd.Series(np.nan, index=index),
+        "gpp_daytime": np.sqrt(day_rref_gpp) * factor if day_known else
+        pd.Series(np.nan, index=index),
+    }
+    parameters["gpp_nighttime"] = parameters["reco_nighttime"]
+    for flux, part in parameters.items():
+        out[f"{flux}_uncertainty_parameters"] = part
+
+    method = {}
+    for kind in ("gpp", "reco"):
+        difference = carbon[f"{kind}_daytime"] - carbon[f"{kind}_nighttime"]
+        method[kind] = difference.abs() / np.sqrt(2.0)
+        out[f"{kind}_uncertainty_partitioning"] = method[kind]
+
+    def total(*parts):
+        table = pd.concat([pd.Series(p, index=index) for p in parts], axis=1)
+        return np.sqrt(np.square(table).sum(axis=1, min_count=1))
+
+    nee_parts = [out["nee_uncertainty_random"], out["nee_uncertainty_gapfill"], ustar["nee"]]
+    out["nee_uncertainty_total"] = total(*nee_parts)
+    out["reco_nighttime_uncertainty_total"] = total(
+        ustar["reco_nighttime"], parameters["reco_nighttime"], method["reco"])
+    out["gpp_nighttime_uncertainty_total"] = total(
+        ustar["gpp_nighttime"], parameters["gpp_nighttime"], method["gpp"],
+        out["nee_uncertainty_random"], out["nee_uncertainty_gapfill"])
+    out["reco_daytime_uncertainty_total"] = total(
+        ustar["reco_daytime"], parameters["reco_daytime"], method["reco"])
+    out["gpp_daytime_uncertainty_total"] = total(
+        ustar["gpp_daytime"], parameters["gpp_daytime"], method["gpp"])
+    for flux in _FLUXES:
+        out[f"{flux}_sigma"] = out[f"{flux}_uncertainty_total"].where(carbon[flux].notna())
+    return out
+
+
+def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame,
+                       parts: pd.DataFrame | None = None, *,
+                       confidence=CONFIDENCE) -> pd.DataFrame:
+    """Annual uncertainty budget: 1-sigma parts, total and the stated 95 % interval.
+
+    Parameters
+    ----------
+    annual : pandas.DataFrame
+        The pipeline's annual table, indexed by year, with ``nee`` and the
+        partitioned sums [g C m-2].
+    random : pandas.DataFrame
+        From :func:`monte_carlo_sums` over the measured records, indexed by year.
+    parts : pandas.DataFrame, optional
+        From :func:`period_uncertainty` with yearly keys. Without it only the
+        random part is known and every other part is named missing.
+    confidence : float, optional
+        Confidence level of the interval; 0.95.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Indexed like `annual`: the columns of :data:`ANNUAL_COLUMNS` except the
+        t CO2 ha-1 ones, among them ``X_ci95_low`` and ``X_ci95_high`` for X in
+        ``nee``, ``gpp_nighttime``, ``reco_nighttime``, ``gpp_daytime``,
+        ``reco_daytime``.
 
     Raises
     ------
@@ -688,31 +1371,18 @@ def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame) -> pd.DataFra
 
     Notes
     -----
-    Parts:
-
-    - random: the Monte Carlo standard deviation of the annual NEE sum. It is
-      also the random part of nighttime GPP, because GPP = Reco − NEE record by
-      record (Reco being a smooth function of temperature). Nighttime Reco and
-      both daytime fluxes are model outputs fitted to many records; the random
-      error of single records largely averages out of them, and their parameter
-      (model) error is not included here.
-    - u*: half the range (max − min) of the annual sums over the central and the
-      scenario thresholds; with scenarios at the 5th, 50th and 95th bootstrap
-      percentiles this spans the 5–95 % range of the threshold. The sum is not
-      monotonic in the threshold, so the range over all runs is used rather than
-      p95 − p05. NaN when no scenarios were run.
-    - partitioning (GPP and Reco): half of |daytime − nighttime|.
-
-    Total: root sum of squares of the available parts, assuming the three are
-    independent (the random errors of the records do not depend on which
-    threshold or method is chosen). The u* and partitioning parts are
-    half-ranges rather than standard deviations, which makes the total
-    conservative. A missing part is left out of the total and named in
-    ``uncertainty_parts_missing``.
+    The interval is ``X ± z·σ`` with σ the root sum of squares of the 1-sigma
+    parts of :func:`period_uncertainty` and z = 1.959964 the 97.5 % quantile of
+    the standard normal: an annual sum adds up thousands of record errors and a
+    handful of independent parts, so its error is close to normal (central
+    limit theorem) even though single-record errors are Laplace. The Monte
+    Carlo percentiles of the random part are kept beside it as a check of that.
 
     Caution: systematic errors are not included; defer to the applicable
     crediting methodology and accredited verification.
     """
+    from scipy.stats import norm
+
     needed = ("random_sd", "random_percentile_2_5", "random_percentile_97_5", "analytic_sd")
     absent = [c for c in needed if c not in random.columns]
     if absent:
@@ -726,28 +1396,45 @@ def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame) -> pd.DataFra
     out["nee_uncertainty_random_percentile_2_5"] = r["random_percentile_2_5"].astype(float)
     out["nee_uncertainty_random_percentile_97_5"] = r["random_percentile_97_5"].astype(float)
     out["nee_uncertainty_random_analytic"] = r["analytic_sd"].astype(float)
-    out["nee_uncertainty_ustar"] = _half_range(annual, "nee")
-    out["nee_uncertainty_total"] = _root_sum_of_squares(out["nee_uncertainty_random"],
-                                                        out["nee_uncertainty_ustar"])
-    partitioning = {kind: _partitioning(annual, kind) for kind in ("gpp", "reco")}
-    out["gpp_uncertainty_partitioning"] = partitioning["gpp"]
-    out["reco_uncertainty_partitioning"] = partitioning["reco"]
-    out["gpp_nighttime_uncertainty_random"] = out["nee_uncertainty_random"]
+    if parts is None:
+        parts = pd.DataFrame(index=annual.index)
+    parts = parts.reindex(annual.index)
+    for column in [c for c in ANNUAL_COLUMNS if c in parts.columns and c not in out.columns
+                   and not c.endswith("_sigma")]:
+        out[column] = parts[column].astype(float)
+    for column in ANNUAL_COLUMNS:
+        if (column.endswith(("_uncertainty_ustar", "_uncertainty_gapfill",
+                             "_uncertainty_parameters", "_uncertainty_partitioning",
+                             "_uncertainty_total")) or column == "nee_uncertainty_gapfill_bias") \
+                and column not in out.columns:
+            out[column] = np.nan
+    # the Monte Carlo standard deviation replaces the analytic random part in the total
+    random_part = out["nee_uncertainty_random"]
+    fill_part = out["nee_uncertainty_gapfill"]
+    out["nee_uncertainty_total"] = np.sqrt(np.square(pd.concat(
+        [random_part, fill_part, out["nee_uncertainty_ustar"]], axis=1)).sum(axis=1, min_count=1))
+    if "gpp_nighttime_uncertainty_total" in parts.columns:
+        analytic = parts["nee_uncertainty_random"].fillna(0.0)
+        out["gpp_nighttime_uncertainty_total"] = np.sqrt(np.maximum(
+            np.square(parts["gpp_nighttime_uncertainty_total"]) - np.square(analytic)
+            + np.square(random_part.fillna(0.0)), 0.0))
+    out["gpp_nighttime_uncertainty_random"] = random_part
+    z = float(norm.ppf(0.5 + confidence / 2.0))
+    for flux in _FLUXES:
+        sigma = out[f"{flux}_uncertainty_total"]
+        value = annual[flux].astype(float) if flux in annual.columns else np.nan
+        out[f"{flux}_ci95_low"] = value - z * sigma
+        out[f"{flux}_ci95_high"] = value + z * sigma
     missing = {"random": out["nee_uncertainty_random"].isna(),
+               "gap filling": out["nee_uncertainty_gapfill"].isna(),
                "ustar": out["nee_uncertainty_ustar"].isna(),
-               "partitioning": partitioning["gpp"].isna() | partitioning["reco"].isna()}
-    for flux in _FLUXES[1:]:
-        kind = flux.split("_")[0]
-        ustar_part = _half_range(annual, flux)
-        out[f"{flux}_uncertainty_ustar"] = ustar_part
-        missing["ustar"] = missing["ustar"] | ustar_part.isna()
-        parts = [ustar_part, partitioning[kind]]
-        if flux == "gpp_nighttime":
-            parts.append(out["gpp_nighttime_uncertainty_random"])
-        out[f"{flux}_uncertainty_total"] = _root_sum_of_squares(*parts)
+               "parameters": out["reco_nighttime_uncertainty_parameters"].isna()
+               | out["reco_daytime_uncertainty_parameters"].isna(),
+               "partitioning": out["gpp_uncertainty_partitioning"].isna()
+               | out["reco_uncertainty_partitioning"].isna()}
     labels = [", ".join(name for name, mask in missing.items() if mask.loc[year])
               for year in out.index]
-    out["uncertainty_parts_missing"] = pd.Series(labels, index=out.index)
+    out["uncertainty_parts_missing"] = pd.Series(labels, index=out.index, dtype=object)
     return out
 
 

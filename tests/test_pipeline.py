@@ -226,7 +226,8 @@ def test_a_different_seed_changes_only_the_random_draw_columns(demo_run):
     changed = [c for c in result.annual.columns
                if not result.annual[c].equals(other.annual[c])]
     assert changed, "a new seed must change the Monte Carlo columns"
-    random_draw = ("_ustar_p", "_ustar_spread", "_uncertainty", "net_uptake_t_co2_per_ha_")
+    random_draw = ("_ustar_p", "_ustar_spread", "_uncertainty", "_ci95_",
+                   "net_uptake_t_co2_per_ha_")
     assert all(any(part in c for part in random_draw) for c in changed), changed
     for column in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime",
                    "ustar_threshold", "net_uptake_t_co2_per_ha"):

@@ -13,14 +13,19 @@ from fluxpart.errors import InsufficientDataError, MissingColumnError, SpacingEr
 from fluxpart.pipeline import process
 from fluxpart.uncertainty import (
     ANNUAL_COLUMNS,
+    artificial_gap_errors,
     carbon_accounting_units,
     draw_random_errors,
+    e0_sensitivity,
+    gap_runs,
+    gapfill_error_model,
     monte_carlo_sums,
     paired_differences,
     random_error_model,
     record_random_error,
     timeseries_random_error,
     uncertainty_budget,
+    ustar_sigma,
 )
 
 REFERENCE = load_reference("uncertainty")
@@ -261,69 +266,150 @@ def test_demo_random_error_near_the_planted_noise(demo_sigma, demo_result):
     # Day-to-day changes of the true flux widen the pair differences (Hollinger &
     # Richardson 2005): sigma is an upper estimate; 35 % covers it on this record.
     np.testing.assert_allclose(model.predict(fluxes), 0.5 + 0.15 * np.abs(fluxes), rtol=0.35)
-    quality = demo_result[0].timeseries["nee_fill_quality"].to_numpy()
-    assert np.isfinite(sigma[quality >= 0]).all() and (sigma[quality >= 0] > 0).all()
+    filled = (demo_result[0].timeseries["nee_fill_quality"] != "unfilled").to_numpy()
+    assert np.isfinite(sigma[filled]).all() and (sigma[filled] > 0).all()
 
 
 # --------------------------------------------------------------------------- budget
 
-def test_uncertainty_budget_combines_parts_by_root_sum_of_squares():
-    """Parts: random 3, u* half-range 4 -> total 5 for NEE; partitioning half |day - night|."""
-    annual = pd.DataFrame({"nee": [-200.0], "gpp_nighttime": [1000.0], "gpp_daytime": [1010.0],
-                           "reco_nighttime": [800.0], "reco_daytime": [780.0],
-                           "gpp_method_difference": [10.0], "reco_method_difference": [-20.0],
-                           "nee_ustar_spread": [8.0], "gpp_nighttime_ustar_spread": [24.0],
-                           "reco_nighttime_ustar_spread": [6.0],
-                           "gpp_daytime_ustar_spread": [0.0], "reco_daytime_ustar_spread": [0.0]},
-                          index=pd.Index([2021], name="year"))
-    random = pd.DataFrame({"random_sd": [3.0], "random_percentile_2_5": [-6.0],
-                           "random_percentile_97_5": [6.0], "analytic_sd": [3.0]},
-                          index=pd.Index([2021], name="year"))
-    out = uncertainty_budget(annual, random)
+def _one_year(values: dict, year=2021):
+    return pd.DataFrame({k: [v] for k, v in values.items()}, index=pd.Index([year], name="year"))
+
+
+_RANDOM = {"random_sd": 3.0, "random_percentile_2_5": -6.0, "random_percentile_97_5": 6.0,
+           "analytic_sd": 3.0}
+
+
+def test_uncertainty_budget_combines_parts_and_states_a_95_percent_interval():
+    """1-sigma parts add in quadrature; the interval is the sum ± z(0.975) x total.
+
+    z(0.975) = 1.959964 (scipy.stats.norm.ppf(0.975)); 3-4-5 and 5-12-13 triangles.
+    """
+    annual = _one_year({"nee": -200.0, "gpp_nighttime": 1000.0, "gpp_daytime": 1010.0,
+                        "reco_nighttime": 800.0, "reco_daytime": 780.0})
+    parts = _one_year({"nee_uncertainty_random": 3.0, "nee_uncertainty_gapfill": 0.0,
+                       "nee_uncertainty_ustar": 4.0, "gpp_nighttime_uncertainty_total": 13.0,
+                       "reco_nighttime_uncertainty_total": 5.0,
+                       "gpp_daytime_uncertainty_total": 12.0,
+                       "reco_daytime_uncertainty_total": 5.0,
+                       "reco_nighttime_uncertainty_parameters": 4.0,
+                       "reco_daytime_uncertainty_parameters": 4.0,
+                       "gpp_uncertainty_partitioning": 5.0,
+                       "reco_uncertainty_partitioning": 3.0})
+    out = uncertainty_budget(annual, _one_year(_RANDOM), parts)
     row = out.loc[2021]
-    assert row["nee_uncertainty_random"] == 3.0 and row["nee_uncertainty_ustar"] == 4.0
+    z = stats.norm.ppf(0.975)
     assert row["nee_uncertainty_total"] == pytest.approx(5.0)
-    assert row["gpp_uncertainty_partitioning"] == 5.0
-    assert row["reco_uncertainty_partitioning"] == 10.0
-    # Nighttime GPP = Reco - NEE carries NEE's random error: sqrt(12^2 + 5^2 + 3^2).
-    assert row["gpp_nighttime_uncertainty_total"] == pytest.approx(np.sqrt(144 + 25 + 9))
-    assert row["reco_nighttime_uncertainty_total"] == pytest.approx(np.sqrt(9 + 100))
-    assert row["gpp_daytime_uncertainty_total"] == pytest.approx(5.0)
+    assert row["nee_ci95_low"] == pytest.approx(-200.0 - z * 5.0)
+    assert row["nee_ci95_high"] == pytest.approx(-200.0 + z * 5.0)
+    assert row["gpp_daytime_ci95_high"] - row["gpp_daytime_ci95_low"] == pytest.approx(2 * z * 12)
+    # the Monte Carlo random part (3) replaces the analytic one (3) in nighttime GPP
+    assert row["gpp_nighttime_uncertainty_total"] == pytest.approx(13.0)
     assert row["uncertainty_parts_missing"] == ""
     assert set(out.columns) <= set(ANNUAL_COLUMNS)
 
 
-def test_uncertainty_budget_without_ustar_scenarios_names_the_missing_part():
-    """Without u* scenarios the u* part is NaN, left out of the total and named."""
-    annual = pd.DataFrame({"nee": [-200.0], "gpp_nighttime": [1000.0], "gpp_daytime": [990.0],
-                           "reco_nighttime": [800.0], "reco_daytime": [790.0]},
-                          index=pd.Index([2022], name="year"))
-    random = pd.DataFrame({"random_sd": [3.0], "random_percentile_2_5": [-6.0],
-                           "random_percentile_97_5": [6.0], "analytic_sd": [3.0]},
-                          index=pd.Index([2022], name="year"))
-    row = uncertainty_budget(annual, random).loc[2022]
+def test_uncertainty_budget_without_parts_names_them_missing():
+    """Only the random part known: the others are NaN and named; NEE's interval is random-only."""
+    annual = _one_year({"nee": -200.0, "gpp_nighttime": 1000.0, "gpp_daytime": 990.0,
+                        "reco_nighttime": 800.0, "reco_daytime": 790.0}, 2022)
+    row = uncertainty_budget(annual, _one_year(_RANDOM, 2022)).loc[2022]
     assert np.isnan(row["nee_uncertainty_ustar"])
     assert row["nee_uncertainty_total"] == 3.0
-    assert row["gpp_uncertainty_partitioning"] == 5.0       # from the two sums
-    assert row["uncertainty_parts_missing"] == "ustar"
+    assert row["uncertainty_parts_missing"] == "gap filling, ustar, parameters, partitioning"
+    assert np.isnan(row["gpp_daytime_ci95_low"])
 
 
-def test_uncertainty_budget_on_the_demo(demo_result, demo_sigma):
-    """Wiring: the demo's annual table gives finite parts, totals at least their largest part."""
+def test_ustar_sigma_from_percentile_runs():
+    """16/50/84 runs: half the range; 5/50/95: range / (2 x 1.644854) (scipy.stats.norm.ppf)."""
+    sums = pd.DataFrame({"central": [10.0], "ustar_p16": [8.0], "ustar_p50": [10.5],
+                         "ustar_p84": [12.0]})
+    assert ustar_sigma(sums, (16, 50, 84)).iloc[0] == pytest.approx(
+        4.0 / (2 * stats.norm.ppf(0.84)))
+    wide = sums.rename(columns={"ustar_p16": "ustar_p05", "ustar_p84": "ustar_p95"})
+    assert ustar_sigma(wide, (5, 50, 95)).iloc[0] == pytest.approx(4.0 / (2 * 1.6448536))
+    assert np.isnan(ustar_sigma(sums[["central"]], ()).iloc[0])
+
+
+def test_gap_runs():
+    """Runs of missing records: starts and lengths."""
+    starts, lengths = gap_runs([False, True, True, False, True, False, True, True, True])
+    np.testing.assert_array_equal(starts, [1, 4, 6])
+    np.testing.assert_array_equal(lengths, [2, 1, 3])
+
+
+def test_gapfill_error_model_recovers_planted_variances_and_bias():
+    """Known truth: S = bias n + sqrt(b) n Z1 + sqrt(a n) Z2 + noise recovers a, b and bias."""
+    rng = np.random.default_rng(5)
+    n = rng.integers(1, 200, size=6000).astype(float)
+    a, b, bias, noise = 1.5, 0.04, -0.3, 0.8
+    total = (bias * n + np.sqrt(b) * n * rng.standard_normal(n.size)
+             + np.sqrt(a * n) * rng.standard_normal(n.size)
+             + noise * np.sqrt(n) * rng.standard_normal(n.size))
+    errors = pd.DataFrame({"round": 0, "gap": np.arange(n.size), "record_class": "night",
+                           "records": n.astype(int), "length": n.astype(int),
+                           "error_sum": total, "noise_variance": noise**2 * n})
+    model = gapfill_error_model(errors)
+    row = model.loc["night"]
+    assert row["bias"] == pytest.approx(bias, abs=3 * row["bias_se"])
+    assert row["correlated_variance"] == pytest.approx(b, rel=0.15)
+    assert row["independent_variance"] == pytest.approx(a, rel=0.35)
+    assert np.isnan(model.loc["day", "bias"])          # no day scores
+
+
+def test_artificial_gaps_score_a_biased_fill():
+    """A fill that returns truth + 0.5 shows a bias of 0.5 against noisy measured records."""
+    rng = np.random.default_rng(2)
+    n = 4000
+    truth = np.sin(np.arange(n) / 20.0) * 5
+    measured = truth + rng.laplace(0, 1.0 / np.sqrt(2), n)
+    measured[rng.random(n) < 0.3] = np.nan
+    night = (np.arange(n) // 24) % 2 == 0
+
+    def fill(values):
+        return np.where(np.isnan(values), truth + 0.5, values)
+
+    errors = artificial_gap_errors(measured, np.ones(n), night, fill, seed=1)
+    assert set(errors["record_class"]) == {"night", "day"}
+    scored = errors["records"].sum()
+    assert 0.2 * np.isfinite(measured).sum() < scored <= 0.4 * np.isfinite(measured).sum()
+    model = gapfill_error_model(errors)
+    assert model["bias"].to_numpy() == pytest.approx([0.5, 0.5], abs=0.1)
+    # Fill error is a constant: no variance beyond the measurement noise removed
+    assert (model["correlated_variance"] < 0.01).all()
+
+
+def test_e0_sensitivity_keeps_night_sums_and_raises_warm_records():
+    """E0 + δ: Lloyd–Taylor ratio exp(δ(1/(Tref-T0) - 1/(T-T0))) (Lloyd & Taylor 1994, eq. 11)."""
+    from fluxpart.responses import lloyd_taylor
+
+    temperature = np.tile(np.r_[np.full(12, 5.0), np.full(12, 20.0)], 8)
+    night = temperature < 10
+    reco = lloyd_taylor(temperature, 2.0, 200.0)
+    blocks = np.repeat(np.arange(2), 96)
+    delta = e0_sensitivity(reco, temperature, night, 200.0, 20.0, blocks)
+    for block in (0, 1):
+        assert delta[(blocks == block) & night].sum() == pytest.approx(0.0, abs=1e-9)
+    expected = lloyd_taylor(20.0, 2.0, 220.0) / lloyd_taylor(5.0, 2.0, 220.0) * reco[0] - reco[12]
+    assert delta[12] == pytest.approx(expected)
+    assert (delta[~night] > 0).all()
+    assert np.all(e0_sensitivity(reco, temperature, night, 200.0, 0.0, blocks) == 0)
+
+
+def test_demo_annual_intervals_and_sigma_columns(demo_result):
+    """Wiring: the demo states finite 95 % intervals around each sum and 1-sigma per period."""
     result, _ = demo_result
-    sigma, _ = demo_sigma
-    random = monte_carlo_sums(sigma, result.timeseries.index, 30, draws=500, seed=0)
-    out = uncertainty_budget(result.annual, random)
-    row = out.loc[2021]
-    for column in ANNUAL_COLUMNS:
-        if column in out.columns and column != "uncertainty_parts_missing":
-            assert np.isfinite(row[column]), column
-    assert row["nee_uncertainty_total"] >= max(row["nee_uncertainty_random"],
-                                               row["nee_uncertainty_ustar"])
-    assert row["nee_uncertainty_ustar"] == pytest.approx(
-        result.annual.loc[2021, "nee_ustar_spread"] / 2)
-    with pytest.raises(MissingColumnError, match="random_sd"):
-        uncertainty_budget(result.annual, random.drop(columns="random_sd"))
+    row = result.annual.loc[2021]
+    for flux in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
+        assert row[f"{flux}_ci95_low"] < row[flux] < row[f"{flux}_ci95_high"], flux
+        assert row[f"{flux}_uncertainty_total"] >= row[f"{flux}_uncertainty_ustar"], flux
+        for table in (result.daily, result.monthly):
+            sigma = table[f"{flux}_sigma"]
+            assert (sigma[table[flux].notna()] >= 0).all() and sigma.notna().any(), flux
+    assert row["nee_uncertainty_total"] >= row["nee_uncertainty_gapfill"] > 0
+    assert row["uncertainty_parts_missing"] == ""
+    assert "gapfill_error_model" in result.parameters
+    assert result.provenance["uncertainty"]["confidence"] == 0.95
 
 
 # --------------------------------------------------------------------------- units
