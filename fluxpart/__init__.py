@@ -24,7 +24,7 @@ _LAZY = {
     "Result": (".pipeline", "Result"),
     "Site": (".site", "Site"),
     "demo": (".demo", None),
-    "load": (".manifest", "load"),
+    "load": (".pipeline", "load"),
     "process": (".pipeline", "process"),
     "process_site_config": (".pipeline", "process_site_config"),
     "read_config": (".io", "read_config"),

@@ -170,10 +170,28 @@ def _parser() -> argparse.ArgumentParser:
     check.add_argument("config", help="site config (TOML)")
     check.set_defaults(handler=_command_check)
 
-    verify = commands.add_parser("verify", help="rerun from DIR/manifest.json and compare")
+    verify = commands.add_parser(
+        "verify", help="rerun from DIR/manifest.json and compare",
+        description="Check DIR against its manifest, rerun it from the recorded input and "
+        "settings, and compare. Exit 0: bit-identical, or reproduced within floating-point "
+        "rounding; 1: any other difference or tampering; 2: error.")
     verify.add_argument("directory", help="result folder written by run or demo")
-    verify.add_argument("--input", help="the input file, if it has moved since the run")
+    verify.add_argument("--input", help="the input file, if it is not where the manifest "
+                        "says (relative to DIR)")
+    verify.add_argument("--config", help="the site config, likewise (default: the recorded "
+                        "place, else the copy of its text in the manifest)")
+    verify.add_argument("--exact", action="store_true",
+                        help="demand bit identity: rounding differences exit 1")
     verify.set_defaults(handler=_lazy("verify", "command_verify"))
+
+    diff = commands.add_parser(
+        "diff", help="what differs between two result folders",
+        description="Compare two result folders: input hashes, settings, site, versions, code "
+        "fingerprint, platform, and how each annual number moved. Exit 0: same; 1: they "
+        "differ; 2: error.")
+    diff.add_argument("first", help="a result folder")
+    diff.add_argument("second", help="another result folder")
+    diff.set_defaults(handler=_lazy("diff", "command_diff"))
 
     report = commands.add_parser("report", help="figures and a self-contained HTML page")
     report.add_argument("directory", help="result folder written by run or demo")

@@ -16,6 +16,7 @@ __all__ = [
     "LengthMismatchError",
     "MissingColumnError",
     "NonMonotonicTimestampError",
+    "OutputError",
     "SpacingError",
     "TimestampError",
     "UnitError",
@@ -32,6 +33,10 @@ class ConfigError(FluxpartError):
 
 class InputFileError(FluxpartError):
     """The input file is missing, unreadable or not what the config says."""
+
+
+class OutputError(FluxpartError):
+    """The result folder cannot be written: a file, not writable, or locked by another run."""
 
 
 class MissingColumnError(FluxpartError):

@@ -1,32 +1,54 @@
-"""The result folder: Parquet tables plus ``manifest.json``, and loading them back.
+"""The manifest of a result folder: what was computed, from what, by which code, on what.
 
-The manifest records what an auditor needs to rerun and compare a result: the
-site, the full resolved settings (seed included), the input file(s) with their
-SHA-256, the library versions, the screening thresholds, the warnings and the
-SHA-256 of every table file. It holds no wall-clock time, so the same input,
-settings and versions give a byte-identical folder.
+``manifest.json`` records what an auditor needs to rerun and compare a result:
+
+- ``site``, the full resolved settings ``config`` (seed included) and ``seed``;
+- ``provenance``: the input file(s) and the site config with their SHA-256 and
+  their paths *relative to the result folder* (so a bundle of result, input and
+  config can move as a whole), the site config's full text (its ``[input]``
+  table says how the input was read), the reader's record and the screening
+  thresholds;
+- ``versions`` of Python and the libraries that shape the numbers, ``code`` (a
+  fingerprint of the package's own source, :func:`fluxpart.fingerprint.code_fingerprint`)
+  and ``platform`` (CPU features and BLAS, :func:`fluxpart.fingerprint.platform_record`);
+- ``warnings``, the ``caution``, and the SHA-256, row count and columns of every table;
+- ``unhashed``: files and folders the folder may hold that the manifest does not
+  hash, because they must be free to differ: the run log (who, when, where,
+  command line) and the report pages derived from the tables;
+- ``seal``: the SHA-256 of the manifest's own content without the seal.
+
+The seal makes an edit of the manifest visible (a changed site name, setting,
+caution or reader record no longer matches the seal). It is an integrity check,
+not a signature: whoever recomputes it after editing defeats it, and it is the
+recomputation by ``fluxpart verify`` that catches such edits. The manifest holds
+no wall-clock time, user or host name (those are in the run log), so the same
+input, settings, code and machine give the same manifest.
+
+This module knows nothing of the pipeline: it turns table entries and metadata
+into a manifest and reads one back.
 """
 
 from __future__ import annotations
 
+import hashlib
 import json
+import os
 import platform
-import shutil
-import tempfile
 from importlib import metadata
 from pathlib import Path
 
-import pandas as pd
-
-from .config import Config
 from .errors import InputFileError
-from .schema import units_for_table
-from .site import Site
-from .store import atomic_write_bytes, read_table, write_table
 
-__all__ = ["CAUTION", "MANIFEST_FORMAT", "library_versions", "load", "read_manifest", "write_result"]
+__all__ = ["CAUTION", "MANIFEST_FILE", "MANIFEST_FORMAT", "REPORT_FOLDER", "RUN_LOG",
+           "build_manifest", "library_versions", "manifest_seal", "portable_provenance",
+           "read_manifest", "recorded_path", "seal_intact"]
 
-MANIFEST_FORMAT = "fluxpart-result/1"
+MANIFEST_FORMAT = "fluxpart-result/2"
+MANIFEST_FILE = "manifest.json"
+#: The run log: who, when, where and the command line; listed, never hashed.
+RUN_LOG = "run-log.json"
+#: The folder of report pages (``fluxpart report``); listed, never hashed.
+REPORT_FOLDER = "report"
 
 #: The caution carried by every manifest, CLI budget and report.
 CAUTION = (
@@ -35,8 +57,13 @@ CAUTION = (
     "and by accredited verification."
 )
 
-_TABLES = ("timeseries", "daily", "monthly", "annual", "ustar", "audit")
 _LIBRARIES = ("fluxpart", "numpy", "pandas", "scipy", "statsmodels", "pyarrow")
+_UNHASHED = {
+    RUN_LOG: "who ran it, when, where and with which command line; free to differ between "
+             "runs, so not hashed",
+    f"{REPORT_FOLDER}/": "report pages drawn from the tables by `fluxpart report`; derived, "
+                         "not hashed",
+}
 
 
 def library_versions() -> dict[str, str]:
@@ -54,106 +81,139 @@ def library_versions() -> dict[str, str]:
     return versions
 
 
-def _result_tables(result) -> dict[str, pd.DataFrame]:
-    tables = {name: getattr(result, name) for name in _TABLES}
-    for name, table in result.parameters.items():
-        tables[f"parameters_{name}"] = table
-    counts = result.screening_counts.rename("records").to_frame()
-    counts.index = counts.index.rename("reason")
-    tables["screening"] = counts
-    return tables
-
-
 def _jsonable(value):
     return json.loads(json.dumps(value, default=str))
 
 
-def write_result(result, directory) -> Path:
-    """Write a :class:`~fluxpart.pipeline.Result` to `directory`.
+def manifest_seal(manifest: dict) -> str:
+    """Return the SHA-256 of the manifest's content without its ``seal`` entry.
 
-    All tables are written to a temporary folder beside `directory` first and
-    moved into place only when every one has been written; ``manifest.json``
-    comes last. A failed write leaves no half-written folder behind.
-
-    Returns
-    -------
-    pathlib.Path
-        The folder written.
+    The content is serialised canonically (sorted keys, no whitespace), so
+    re-indenting the file does not change the seal but changing any value does.
     """
-    directory = Path(directory)
-    directory.parent.mkdir(parents=True, exist_ok=True)
-    staging = Path(tempfile.mkdtemp(prefix=f".{directory.name}.", dir=directory.parent))
+    content = {key: value for key, value in manifest.items() if key != "seal"}
+    text = json.dumps(content, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
+
+
+def seal_intact(manifest: dict) -> bool:
+    """True when the manifest's ``seal`` matches its content."""
+    return manifest.get("seal") == manifest_seal(manifest)
+
+
+def _relative(path_text, directory: Path):
+    """`path_text` relative to `directory` where possible (POSIX separators)."""
+    if not isinstance(path_text, str) or not path_text:
+        return path_text
+    path = Path(path_text)
+    if not path.is_absolute():
+        return path.as_posix()
     try:
-        entries = {}
-        for name, table in _result_tables(result).items():
-            frame = table if table.index.name is not None else table.rename_axis("row")
-            columns = [frame.index.name or "index", *frame.columns]
-            sha = write_table(frame, staging / f"{name}.parquet",
-                              units_for_table(_unit_table(name), columns), name)
-            entries[name] = {"file": f"{name}.parquet", "sha256": sha, "rows": len(frame),
-                             "columns": [str(c) for c in columns]}
-        manifest = {
-            "format": MANIFEST_FORMAT,
-            "caution": CAUTION,
-            "site": result.site.to_dict(),
-            "config": result.config.to_dict(),
-            "seed": result.config.seed,
-            "provenance": _jsonable(result.provenance),
-            "versions": library_versions(),
-            "warnings": list(result.warnings),
-            "tables": entries,
-        }
-        text = json.dumps(manifest, indent=2, sort_keys=True, ensure_ascii=False) + "\n"
-        directory.mkdir(parents=True, exist_ok=True)
-        for entry in entries.values():
-            (staging / entry["file"]).replace(directory / entry["file"])
-        atomic_write_bytes(directory / "manifest.json", text.encode("utf-8"))
-    finally:
-        shutil.rmtree(staging, ignore_errors=True)
-    return directory
+        return Path(os.path.relpath(path, directory)).as_posix()
+    except ValueError:  # another drive on Windows: no relative path exists
+        return path.as_posix()
 
 
-def _unit_table(name: str) -> str:
-    return name if name in ("timeseries", "daily", "monthly", "annual", "audit") else "parameters"
-
-
-def read_manifest(directory) -> dict:
-    """Return the parsed ``manifest.json`` of a result folder."""
-    path = Path(directory) / "manifest.json"
-    if not path.exists():
-        raise InputFileError(f"{str(path)!r} does not exist: {str(directory)!r} is not a "
-                             "fluxpart result folder")
-    try:
-        return json.loads(path.read_text(encoding="utf-8"))
-    except json.JSONDecodeError as error:
-        raise InputFileError(f"{str(path)!r} is not valid JSON: {error}") from None
-
-
-def load(directory):
-    """Load a result folder written by :meth:`Result.write` as a ``Result``.
+def portable_provenance(provenance: dict, directory) -> dict:
+    """Return `provenance` with the input and site config paths relative to `directory`.
 
     Parameters
     ----------
+    provenance : dict
+        As carried by a result (absolute paths from :func:`fluxpart.process_site_config`).
     directory : path-like
-        Folder with ``manifest.json`` and the Parquet tables.
+        The result folder's final place (absolute).
 
     Returns
     -------
-    fluxpart.pipeline.Result
-        The same tables, site and settings that were written.
+    dict
+        A copy in which ``input`` and ``site_config`` entries (a dict, or a list of
+        dicts, with a ``path``) hold paths relative to `directory`.
     """
-    from .pipeline import Result
+    directory = Path(os.path.abspath(directory))
+    out = _jsonable(provenance)
+    for key in ("input", "site_config"):
+        entries = out.get(key)
+        for entry in entries if isinstance(entries, list) else [entries]:
+            if isinstance(entry, dict) and "path" in entry:
+                entry["path"] = _relative(entry["path"], directory)
+    return out
 
-    directory = Path(directory)
-    manifest = read_manifest(directory)
-    tables = {name: read_table(directory / entry["file"])
-              for name, entry in manifest["tables"].items()}
-    parameters = {name[len("parameters_"):]: table for name, table in tables.items()
-                  if name.startswith("parameters_")}
-    config = Config.from_mapping(manifest["config"], where="manifest config:")
-    return Result(site=Site(**manifest["site"]), config=config,
-                  timeseries=tables["timeseries"], daily=tables["daily"],
-                  monthly=tables["monthly"], annual=tables["annual"], ustar=tables["ustar"],
-                  audit=tables["audit"],
-                  parameters=parameters, screening_counts=tables["screening"]["records"],
-                  warnings=tuple(manifest["warnings"]), provenance=manifest["provenance"])
+
+def recorded_path(directory, entry: dict) -> Path | None:
+    """Where a recorded ``path`` (relative to the result folder) points now, or None."""
+    text = entry.get("path") if isinstance(entry, dict) else None
+    if not isinstance(text, str) or not text:
+        return None
+    path = Path(text)
+    return path if path.is_absolute() else Path(os.path.abspath(Path(directory) / path))
+
+
+def build_manifest(tables: dict, *, site: dict, config: dict, seed, provenance: dict,
+                   warnings, versions: dict, code: dict, platform_facts: dict,
+                   directory) -> dict:
+    """Assemble the manifest of a result folder and seal it.
+
+    Parameters
+    ----------
+    tables : dict
+        Table name -> ``{"file", "sha256", "rows", "columns"}``.
+    site, config : dict
+        The site and the resolved settings (``Site.to_dict()``, ``Config.to_dict()``).
+    seed : int
+        The random seed used.
+    provenance : dict
+        Input and site config records, reader record, screening thresholds;
+        paths are made relative to `directory` (:func:`portable_provenance`).
+    warnings : sequence of str
+        Warnings of the run.
+    versions, code, platform_facts : dict
+        :func:`library_versions`, :func:`fluxpart.fingerprint.code_fingerprint`,
+        :func:`fluxpart.fingerprint.platform_record`.
+    directory : path-like
+        The folder's final place, to which recorded paths are made relative.
+
+    Returns
+    -------
+    dict
+        The manifest, with its ``seal``.
+    """
+    manifest = {
+        "format": MANIFEST_FORMAT,
+        "caution": CAUTION,
+        "site": _jsonable(site),
+        "config": _jsonable(config),
+        "seed": seed,
+        "provenance": portable_provenance(provenance, directory),
+        "versions": dict(versions),
+        "code": dict(code),
+        "platform": _jsonable(platform_facts),
+        "warnings": list(warnings),
+        "tables": _jsonable(tables),
+        "unhashed": dict(_UNHASHED),
+    }
+    manifest["seal"] = manifest_seal(manifest)
+    return manifest
+
+
+def manifest_bytes(manifest: dict) -> bytes:
+    """The text of ``manifest.json``: indented, sorted keys, UTF-8, final newline."""
+    return (json.dumps(manifest, indent=2, sort_keys=True, ensure_ascii=False) + "\n").encode()
+
+
+def read_manifest(directory) -> dict:
+    """Return the parsed ``manifest.json`` of a result folder (no integrity check).
+
+    Use :func:`fluxpart.resultdir.read_folder` to also check the seal and every file.
+    """
+    path = Path(directory) / MANIFEST_FILE
+    if not path.is_file():
+        raise InputFileError(f"{str(path)!r} does not exist: {str(directory)!r} is not a "
+                             "fluxpart result folder")
+    try:
+        manifest = json.loads(path.read_text(encoding="utf-8"))
+    except (json.JSONDecodeError, UnicodeDecodeError) as error:
+        raise InputFileError(f"{str(path)!r} is not valid JSON: {error}") from None
+    if not isinstance(manifest, dict):
+        raise InputFileError(f"{str(path)!r} is not a fluxpart manifest (not a JSON object)")
+    return manifest

@@ -39,7 +39,7 @@ from .partition import daytime, nighttime
 from .site import Site
 from .variables import REQUIRED, VARIABLES
 
-__all__ = ["Result", "process", "process_site_config", "screening_summary", "stage_count"]
+__all__ = ["Result", "load", "process", "process_site_config", "screening_summary", "stage_count"]
 
 _BUDGET_FLUXES = {"nee_filled": "nee", "gpp_nighttime": "gpp_nighttime",
                   "reco_nighttime": "reco_nighttime", "gpp_daytime": "gpp_daytime",
@@ -95,11 +95,64 @@ class Result:
     warnings: tuple = ()
     provenance: dict = field(default_factory=dict)
 
-    def write(self, directory) -> Path:
-        """Write the Parquet tables and ``manifest.json`` to `directory`; return it."""
-        from .manifest import write_result
+    def tables(self) -> dict:
+        """Every table of the result by its file name in a result folder."""
+        tables = {name: getattr(self, name) for name in _TABLES}
+        for name, table in self.parameters.items():
+            tables[f"parameters_{name}"] = table
+        counts = self.screening_counts.rename("records").to_frame()
+        counts.index = counts.index.rename("reason")
+        tables["screening"] = counts
+        return tables
 
-        return write_result(self, directory)
+    def write(self, directory, *, lock_timeout: float | None = None) -> Path:
+        """Write the tables and ``manifest.json`` to `directory`, replacing it as a whole.
+
+        See :func:`fluxpart.resultdir.write_folder`: the folder holds either the
+        earlier result or this one, never a mix; a second writer of the same
+        folder waits up to `lock_timeout` seconds (default 600). Returns the folder.
+        """
+        from .resultdir import DEFAULT_LOCK_TIMEOUT, write_folder
+
+        return write_folder(directory, self.tables(), site=self.site.to_dict(),
+                            config=self.config.to_dict(), seed=self.config.seed,
+                            provenance=self.provenance, warnings=self.warnings,
+                            lock_timeout=DEFAULT_LOCK_TIMEOUT if lock_timeout is None
+                            else lock_timeout)
+
+
+_TABLES = ("timeseries", "daily", "monthly", "annual", "ustar", "audit")
+
+
+def load(directory) -> Result:
+    """Load a result folder written by :meth:`Result.write`.
+
+    Parameters
+    ----------
+    directory : path-like
+        Folder with ``manifest.json`` and the Parquet tables.
+
+    Returns
+    -------
+    Result
+        The same tables, site and settings that were written.
+
+    Raises
+    ------
+    InputFileError
+        If the folder does not match its manifest (an edited manifest, a table
+        whose bytes changed, a missing or an extra file): the file is named.
+    """
+    from .resultdir import read_folder
+
+    manifest, tables = read_folder(directory)
+    parameters = {name[len("parameters_"):]: table for name, table in tables.items()
+                  if name.startswith("parameters_")}
+    config = Config.from_mapping(manifest["config"], where="manifest config:")
+    return Result(site=Site(**manifest["site"]), config=config,
+                  **{name: tables[name] for name in _TABLES},
+                  parameters=parameters, screening_counts=tables["screening"]["records"],
+                  warnings=tuple(manifest["warnings"]), provenance=manifest["provenance"])
 
 
 def _validate(frame: pd.DataFrame) -> int:
@@ -473,24 +526,40 @@ def _scenario_spread(annual, outcomes, index, interval) -> pd.DataFrame:
     return out
 
 
-def process_site_config(path, config: Config | None = None, *, progress=None) -> Result:
+def process_site_config(path, config: Config | None = None, *, progress=None,
+                        input_path=None) -> Result:
     """Read a site config (TOML) and its input file, then :func:`process` them.
 
-    The input file's path and SHA-256 and the config file's SHA-256 are recorded
-    in the result's provenance (and so in ``manifest.json``).
+    The input file's path and SHA-256 and the config file's path, SHA-256 and
+    full text are recorded in the result's provenance (and so in
+    ``manifest.json``). `input_path`, when given, replaces the config's
+    ``[input] path`` (an auditor's moved copy of the input).
     """
+    import dataclasses
+    import hashlib
+
     from .io import read_site_config
     from .store import file_sha256
 
     site_config = read_site_config(path)
+    if input_path is not None:
+        site_config = dataclasses.replace(site_config, input_paths=(Path(input_path),))
+    config_bytes = Path(path).read_bytes()
     frame, report = site_config.read()
-    config = Config.from_toml(path) if config is None else config
+    from_file = Config.from_toml(path)
+    config = from_file if config is None else config
     provenance = {
+        # where the settings came from: verify reruns from the site config's own
+        # [processing] table when they came from it, so an edited setting is named
+        "settings": "site config" if config == from_file else "given by the caller",
         "reader": {"records_read": report.records_read, "stamps_inserted": report.stamps_inserted,
                    "time_marks": report.time_marks, "shift_minutes": report.shift_minutes,
                    "columns": dict(report.columns), "units": dict(report.units),
                    "derived": list(report.derived), "warnings": list(report.warnings)},
-        "site_config": {"path": str(Path(path).resolve()), "sha256": file_sha256(path)},
+        "site_config": {"path": str(Path(path).resolve()),
+                        "sha256": hashlib.sha256(config_bytes).hexdigest(),
+                        "text": config_bytes.decode("utf-8", errors="replace")},
+
         "input": {"path": str(Path(site_config.input_path).resolve()), "sha256": file_sha256(
             site_config.input_path)},
     }

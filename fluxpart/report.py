@@ -34,7 +34,8 @@ from .budget import flux_to_carbon
 from .config import Config
 from .constants import CARBON_MOLAR_MASS, CO2_MOLAR_MASS, SOLAR_CONSTANT
 from .errors import FluxpartError
-from .manifest import CAUTION, load, read_manifest
+from .manifest import CAUTION, read_manifest
+from .pipeline import load
 from .responses import LASSLOP_VPD0_HPA, light_response, lloyd_taylor
 from .store import atomic_write_bytes
 

@@ -1,25 +1,54 @@
 """The auditor's rerun: recompute a result folder from its manifest and compare.
 
-:func:`verify` reads ``manifest.json`` of a result folder, checks that every
-Parquet file still has the SHA-256 the manifest records, reruns the pipeline
-from the recorded input and the recorded settings (the manifest's ``config``
-and ``site``, not those of the site config file), and compares every stored
-table with the recomputed one value by value. A difference is reported with
-its table, column, row (index value) and both values.
+:func:`verify` checks a result folder in four steps:
 
-What is recomputed:
+1. **Integrity.** The manifest's seal must match its content (an edited site,
+   setting, caution or reader record breaks it), every table must have its
+   recorded SHA-256, and the folder must hold nothing but the files its manifest
+   lists (:func:`fluxpart.resultdir.check_folder`).
+2. **The recorded inputs.** For a ``fluxpart run`` result, the input file and the
+   site config are looked for where the manifest says, *relative to the result
+   folder* (so a bundle that moved as a whole is found), or where ``--input`` and
+   ``--config`` say. Each must have its recorded SHA-256. A site config that
+   cannot be found is rebuilt from the text the manifest records. A
+   ``fluxpart demo`` result is regenerated from its recorded seed.
+3. **The rerun** with the recorded settings and seed (those of the site config's
+   ``[processing]`` table when the manifest says the settings came from it, else
+   the manifest's ``config``), written by the same writer to a scratch folder
+   and read back.
+4. **Comparison.** Every manifest field of the rerun (site, settings, seed,
+   warnings, caution, reader record, screening thresholds, input hashes, table
+   list) must equal the stored one; each that differs is named. Every table is
+   compared value by value.
 
-- a result of ``fluxpart run``: the recorded input file (or the one given with
-  ``--input`` if it has moved) must exist and have the recorded SHA-256, and so
-  must the site config, whose ``[input]`` table says how to read the file;
-- a result of ``fluxpart demo``: the invented demo record is regenerated from
-  its recorded seed and variant.
+Verdicts and exit statuses of ``fluxpart verify``:
 
-Because the manifest's own settings drive the rerun, an edited setting in
-``manifest.json`` shows up as differing tables; a hand-edited Parquet file shows
-up both as a hash mismatch and at the cell that changed. Library versions that
-differ from the recorded ones are reported as warnings: they may change the last
-digits of a result.
+- ``bit-identical`` (0): every value equals its recomputation bit for bit;
+- ``reproduced within floating-point rounding`` (0, or 1 with ``--exact``):
+  floating-point values differ, but each by at most :data:`ROUNDING_TOLERANCE`
+  relative to the larger of the two (values near zero: relative to
+  :data:`NEAR_ZERO_SHARE` of the column's largest magnitude), and nothing else
+  differs; the largest relative difference and the platform facts that differ
+  are given;
+- ``NOT reproduced`` (1): anything else — a larger or non-float difference, a
+  changed file, an edited manifest, an extra or missing file, another input;
+- errors (2): no manifest, inputs that cannot be found.
+
+Why the tolerance is 1e-6: a float64 carries about 16 significant digits. A
+different CPU feature set or BLAS changes the order of additions (SIMD width,
+threading), which moves sums of a year of records in their last 1–3 digits
+(about 1e-15 to 1e-13 relative), and an iterative fit that stops at a relative
+step of about 1e-8 can end a few steps apart. 1e-6 leaves a margin of 100 over
+that, yet is five orders of magnitude below the 0.1 g C m-2 precision to which
+an annual budget of some hundred g C m-2 is reported, so no difference that
+could change a reported number passes as rounding. A discrete decision that
+flips (a record screened, a u* class moved) gives a larger difference and is
+reported as not reproduced.
+
+Differences of library versions, of the product's code (its fingerprint,
+:func:`fluxpart.fingerprint.code_fingerprint`) and of the platform are listed
+and are not failures by themselves; when values differ and the code
+fingerprint differs, the changed code is named as the likely cause.
 
 Caution: identical numbers show that a result is reproducible from the recorded
 input and settings. They do not certify the input data, the methods or a
@@ -30,7 +59,6 @@ verification.
 from __future__ import annotations
 
 import json
-import sys
 import tempfile
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -40,15 +68,25 @@ import pandas as pd
 
 from .config import Config
 from .errors import FluxpartError, InputFileError
-from .manifest import CAUTION, library_versions, read_manifest
-from .site import Site
+from .fingerprint import code_fingerprint, platform_differences, platform_record
+from .manifest import CAUTION, library_versions, read_manifest, recorded_path
 from .store import file_sha256, read_table
 
-__all__ = ["Difference", "VerifyReport", "command_verify", "verify"]
+__all__ = ["NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference", "VerifyReport",
+           "command_verify", "compare_tables", "field_differences", "verify"]
+
+#: Largest relative difference of a float value still classed as floating-point rounding.
+ROUNDING_TOLERANCE = 1e-6
+#: Values smaller than this share of their column's largest magnitude are compared
+#: relative to that share instead (relative differences of near-zero values mean nothing).
+NEAR_ZERO_SHARE = 1e-3
 
 #: Differing columns listed per table before the rest are summarised.
 _MAX_COLUMNS_LISTED = 5
-_MANIFEST_KEYS = ("format", "site", "config", "seed", "warnings")
+#: Differing manifest fields listed before the rest are summarised.
+_MAX_FIELDS_LISTED = 40
+_ENVIRONMENT_KEYS = ("versions", "code", "platform")
+_PATH_FREE = ("format", "caution", "site", "config", "seed", "warnings")
 
 
 @dataclass(frozen=True)
@@ -58,22 +96,28 @@ class Difference:
     Attributes
     ----------
     table : str
-        Table name (``"annual"``, ...) or ``"manifest"``/``"input"``.
+        Table name (``"annual"``, ...), ``"manifest"``, ``"folder"`` or ``"input"``.
     kind : str
-        ``"value"`` (cells of a column differ), ``"hash"`` (a file's SHA-256 is not
-        the recorded one), ``"input"`` (the input or site config changed),
-        ``"file"`` (a table file is missing or unreadable), ``"table"`` (a table
-        only on one side), ``"columns"``, ``"rows"``, ``"index"``, ``"dtype"``,
-        ``"more"`` (further differing columns of a table, listed in `stored`) or
-        ``"manifest"`` (a manifest entry differs).
+        ``"value"`` (cells of a column differ beyond rounding), ``"rounding"``
+        (float cells differ within :data:`ROUNDING_TOLERANCE`), ``"hash"`` (a
+        file's SHA-256 is not the recorded one), ``"input"`` (the input or site
+        config is another file), ``"file"`` (missing or unreadable), ``"extra"``
+        (a file the manifest does not list), ``"seal"`` (the manifest was edited),
+        ``"table"`` (a table only on one side), ``"columns"``, ``"rows"``,
+        ``"index"``, ``"dtype"``, ``"more"`` (further differing columns, listed
+        in `stored`) or ``"manifest"`` (a manifest field differs; `column` names it).
     column : str or None
-        Column at fault.
+        Column or manifest field at fault.
     row : str or None
-        ``"<index name>=<value>"`` of the first differing row.
+        ``"<index name>=<value>"`` of the first (or, for rounding, the largest)
+        differing row.
     stored, recomputed : str
         The two values as text (full precision for numbers).
     count : int
         How many cells (or rows) of the column differ.
+    relative : float
+        Largest relative difference of the column (``"value"`` and ``"rounding"``
+        of float columns; NaN otherwise).
     """
 
     table: str
@@ -83,13 +127,17 @@ class Difference:
     stored: str = ""
     recomputed: str = ""
     count: int = 1
+    relative: float = float("nan")
 
     def describe(self) -> str:
         """Return one line naming the location and both values."""
-        if self.kind == "value":
-            more = f" ({self.count} rows differ; first shown)" if self.count > 1 else ""
-            return (f"{self.table}: column {self.column!r} at {self.row}: stored "
-                    f"{self.stored}, recomputed {self.recomputed}{more}")
+        if self.kind in ("value", "rounding"):
+            more = f" ({self.count} rows differ" if self.count > 1 else " (1 row differs"
+            relative = (f"; largest relative difference {self.relative:.3g})"
+                        if np.isfinite(self.relative) else ")")
+            within = " within rounding" if self.kind == "rounding" else ""
+            return (f"{self.table}: column {self.column!r}{within} at {self.row}: stored "
+                    f"{self.stored}, recomputed {self.recomputed}{more}{relative}")
         if self.kind == "more":
             return f"{self.table}: {self.count} more column(s) differ: {self.stored}"
         if self.kind == "input":
@@ -99,60 +147,129 @@ class Difference:
         if self.kind == "hash":
             return (f"{self.table}: file SHA-256 {self.recomputed} is not the {self.stored} "
                     "recorded in manifest.json (the file was changed after it was written)")
-        where = f"{self.table}" + (f": column {self.column!r}" if self.column else "") + \
-            (f" at {self.row}" if self.row else "")
-        return f"{where}: {self.kind} differs: stored {self.stored}, recomputed {self.recomputed}"
+        if self.kind in ("seal", "extra"):
+            return f"{self.table}: {self.column} {self.stored}"
+        if self.kind == "file":
+            return f"{self.table}: {self.stored}, {self.recomputed}"
+        if self.kind == "manifest":
+            return (f"manifest field {self.column!r} differs: stored {self.stored}, "
+                    f"recomputed {self.recomputed}")
+        if self.kind == "table":
+            return f"{self.table}: stored {self.stored}, recomputed {self.recomputed}"
+        where = f" column {self.column!r}" if self.column else ""
+        at = f" at {self.row}" if self.row else ""
+        return (f"{self.table}:{where}{at} {self.kind} differ: stored {self.stored}, "
+                f"recomputed {self.recomputed}")
 
 
 @dataclass(frozen=True)
 class VerifyReport:
-    """Outcome of :func:`verify`.
+    """The outcome of :func:`verify`.
 
     Attributes
     ----------
     directory : pathlib.Path
         The result folder checked.
     source : str
-        ``"run"`` or ``"demo"``: what was recomputed.
+        ``"run"`` (recorded input file) or ``"demo"`` (regenerated demo record).
     tables : tuple of str
         Tables compared.
     differences : tuple of Difference
-        Every difference found; empty when the result is reproduced.
-    version_warnings : tuple of str
-        Libraries whose version differs from the recorded one.
+        Failures: everything that is not reproduced (empty when reproduced).
+    rounding : tuple of Difference
+        Float columns that differ within :data:`ROUNDING_TOLERANCE`.
+    environment : tuple of str
+        Library versions, code fingerprint and platform facts that differ between
+        the writing run and this one.
+    code_changed : bool
+        The product's code fingerprint differs from the recorded one.
+    exact : bool
+        Bit identity was demanded (``--exact``): rounding differences fail.
     notes : tuple of str
-        Facts that are not failures (e.g. equal values in files that differ in bytes).
+        Facts that are not failures (a site config rebuilt from the manifest, file
+        bytes that differ with equal values).
     """
 
     directory: Path
     source: str
     tables: tuple = ()
     differences: tuple = ()
-    version_warnings: tuple = ()
+    rounding: tuple = ()
+    environment: tuple = ()
+    code_changed: bool = False
+    exact: bool = False
     notes: tuple = field(default=())
 
     @property
     def identical(self) -> bool:
-        """True when no difference was found."""
-        return not self.differences
+        """True when every value equals its recomputation bit for bit."""
+        return not self.differences and not self.rounding
+
+    @property
+    def reproduced(self) -> bool:
+        """True when the verdict is bit-identical, or rounding only without ``exact``."""
+        return not self.differences and (not self.rounding or not self.exact)
+
+    @property
+    def version_warnings(self) -> tuple:
+        """The environment differences (kept under their earlier name)."""
+        return self.environment
+
+    @property
+    def largest_relative_difference(self) -> float:
+        """Largest relative difference among the rounding differences (0 when none)."""
+        values = [d.relative for d in self.rounding if np.isfinite(d.relative)]
+        return max(values) if values else 0.0
+
+    @property
+    def exit_code(self) -> int:
+        """0 when reproduced (see :attr:`reproduced`), 1 otherwise."""
+        return 0 if self.reproduced else 1
+
+    def _platform_phrase(self) -> str:
+        platform = [e for e in self.environment if e.startswith("platform differs")]
+        return platform[0][len("platform differs in "):] if platform else ""
 
     def format(self) -> str:
         """Return the report as text for the command line."""
+        count = len(self.tables)
         if self.identical:
-            lines = [f"identical: all {len(self.tables)} tables of {self.directory} match the "
-                     f"recomputation from the recorded {self.source} input and settings"]
+            lines = [f"bit-identical: all {count} tables of {self.directory} equal, bit for "
+                     f"bit, their recomputation from the recorded {self.source} input and "
+                     "settings"]
+        elif self.reproduced:
+            where = self._platform_phrase()
+            cause = (f"platform differs in {where}" if where else
+                     "the code differs" if self.code_changed else
+                     "no recorded platform fact differs")
+            lines = [f"reproduced within floating-point rounding (largest relative difference "
+                     f"{self.largest_relative_difference:.3g}; {cause}): all {count} tables "
+                     f"of {self.directory} match their recomputation within the relative "
+                     f"tolerance {ROUNDING_TOLERANCE:g}"]
+            lines += [f"  {d.describe()}" for d in self.rounding]
         else:
-            lines = [f"NOT identical: {len(self.differences)} difference(s) between "
-                     f"{self.directory} and its recomputation:"]
-            lines += [f"  {d.describe()}" for d in self.differences]
+            failures = list(self.differences)
+            if self.exact and not failures:
+                lines = [f"NOT bit-identical (--exact): {len(self.rounding)} column(s) of "
+                         f"{self.directory} differ within floating-point rounding (largest "
+                         f"relative difference {self.largest_relative_difference:.3g})"]
+            else:
+                lines = [f"NOT reproduced: {len(failures)} difference(s) between "
+                         f"{self.directory} and its recomputation:"]
+            lines += [f"  {d.describe()}" for d in failures + list(self.rounding)]
+            if self.code_changed and any(d.kind in ("value", "rows", "columns", "table",
+                                                    "rounding", "manifest")
+                                         for d in failures + list(self.rounding)):
+                lines.append("likely cause: the product's code differs from the code that "
+                             "wrote the result (code fingerprint changed; see below)")
+        lines += [f"environment: {e}" for e in self.environment]
         lines += [f"note: {n}" for n in self.notes]
-        lines.append("Caution: identical numbers show the result is reproducible from the "
-                     "recorded input and settings; they do not certify the data or a credit. "
-                     + CAUTION)
+        lines.append("Caution: reproduced numbers show the result follows from the recorded "
+                     "input and settings; they do not certify the data or a credit. " + CAUTION)
         return "\n".join(lines)
 
 
-# --------------------------------------------------------------------------- helpers
+# --------------------------------------------------------------------------- value comparison
 
 def _show(value) -> str:
     if value is None or (isinstance(value, float) and np.isnan(value)) or value is pd.NaT:
@@ -180,7 +297,42 @@ def _unequal(left: pd.Series, right: pd.Series) -> np.ndarray:
     return ~(same | both_missing)
 
 
-def _compare_table(name: str, stored: pd.DataFrame, recomputed: pd.DataFrame) -> list:
+def _float_column(left: pd.Series, right: pd.Series):
+    """(differs bitwise, beyond rounding, relative difference) of two float64 columns."""
+    a = left.to_numpy(dtype=np.float64, copy=True)
+    b = right.to_numpy(dtype=np.float64, copy=True)
+    nan_a, nan_b = np.isnan(a), np.isnan(b)
+    differs = (a.view(np.int64) != b.view(np.int64)) & ~(nan_a & nan_b)
+    relative = np.zeros(len(a))
+    beyond = differs & (nan_a != nan_b)
+    both = differs & ~nan_a & ~nan_b
+    if both.any():
+        with np.errstate(invalid="ignore", over="ignore"):
+            finite = np.isfinite(a) & np.isfinite(b)
+            scale = np.nanmax(np.abs(np.concatenate([a[np.isfinite(a)], b[np.isfinite(b)]]))
+                              ) if (np.isfinite(a) | np.isfinite(b)).any() else 0.0
+            reference = np.maximum(np.maximum(np.abs(a), np.abs(b)), NEAR_ZERO_SHARE * scale)
+            gap = np.abs(a - b)
+            relative = np.where(both & finite & (reference > 0), gap / np.where(
+                reference > 0, reference, 1.0), np.where(both, np.inf, 0.0))
+        beyond |= both & ~(relative <= ROUNDING_TOLERANCE)
+    return differs, beyond, relative
+
+
+def _is_float(series: pd.Series) -> bool:
+    return pd.api.types.is_float_dtype(series.dtype)
+
+
+def compare_tables(name: str, stored: pd.DataFrame, recomputed: pd.DataFrame) -> list:
+    """Compare two versions of a table value by value.
+
+    Returns
+    -------
+    list of Difference
+        ``"rounding"`` entries for float columns that differ only within
+        :data:`ROUNDING_TOLERANCE`; ``"value"`` and structural entries for
+        everything else.
+    """
     out = []
     if list(stored.columns) != list(recomputed.columns):
         only_stored = [c for c in stored.columns if c not in recomputed.columns]
@@ -200,22 +352,31 @@ def _compare_table(name: str, stored: pd.DataFrame, recomputed: pd.DataFrame) ->
                               recomputed=_show(recomputed.index[position]),
                               count=int(index_differs.sum())))
         return out
-    listed = 0
-    unlisted = []
+    listed, unlisted = 0, []
     for column in [c for c in stored.columns if c in recomputed.columns]:
         left, right = stored[column], recomputed[column]
-        differs = _unequal(left, right)
+        if _is_float(left) and _is_float(right):
+            differs, beyond, relative = _float_column(left, right)
+            kind = "value" if beyond.any() else "rounding"
+            shown = beyond if beyond.any() else differs
+            position = (int(np.flatnonzero(beyond)[0]) if beyond.any()
+                        else int(np.argmax(np.where(differs, relative, -1.0))))
+            largest = float(np.max(relative[differs])) if differs.any() else float("nan")
+        else:
+            differs = _unequal(left, right)
+            kind, shown = "value", differs
+            position = int(np.flatnonzero(differs)[0]) if differs.any() else 0
+            largest = float("nan")
         if differs.any():
-            if listed >= _MAX_COLUMNS_LISTED:
+            if kind == "value" and listed >= _MAX_COLUMNS_LISTED:
                 unlisted.append(str(column))
                 continue
-            position = int(np.flatnonzero(differs)[0])
-            out.append(Difference(name, "value", column=str(column),
+            out.append(Difference(name, kind, column=str(column),
                                   row=_row_label(stored.index, position),
                                   stored=_show(left.iloc[position]),
                                   recomputed=_show(right.iloc[position]),
-                                  count=int(differs.sum())))
-            listed += 1
+                                  count=int(shown.sum()), relative=largest))
+            listed += kind == "value"
         elif left.dtype != right.dtype:
             out.append(Difference(name, "dtype", column=str(column), stored=str(left.dtype),
                                   recomputed=str(right.dtype)))
@@ -224,167 +385,278 @@ def _compare_table(name: str, stored: pd.DataFrame, recomputed: pd.DataFrame) ->
     return out
 
 
-def _check_hashes(directory: Path, manifest: dict) -> tuple[list, dict]:
-    """Compare each table file with its recorded SHA-256; return (differences, stored tables)."""
-    differences, tables = [], {}
-    for name, entry in sorted(manifest.get("tables", {}).items()):
-        path = directory / entry["file"]
-        if not path.exists():
-            differences.append(Difference(name, "file", stored=f"{entry['file']} recorded",
-                                          recomputed="file missing from the folder"))
-            continue
-        actual = file_sha256(path)
-        if actual != entry.get("sha256"):
-            differences.append(Difference(name, "hash", stored=str(entry.get("sha256")),
-                                          recomputed=actual))
-        try:
-            tables[name] = read_table(path)
-        except (FluxpartError, OSError, ValueError) as error:
-            differences.append(Difference(name, "file", stored=entry["file"],
-                                          recomputed=f"unreadable: {error}"))
-    return differences, tables
+# --------------------------------------------------------------------------- manifest fields
+
+def field_differences(stored, recomputed, prefix: str) -> list[tuple[str, object, object]]:
+    """Every leaf of two JSON values that differs, as ``(dotted name, stored, recomputed)``.
+
+    Dictionaries are walked key by key (a key on one side only is a difference);
+    lists and other values are compared whole.
+    """
+    if isinstance(stored, dict) and isinstance(recomputed, dict):
+        out = []
+        for key in sorted(set(stored) | set(recomputed), key=str):
+            name = f"{prefix}.{key}" if prefix else str(key)
+            if key not in stored:
+                out.append((name, "(absent)", recomputed[key]))
+            elif key not in recomputed:
+                out.append((name, stored[key], "(absent)"))
+            else:
+                out += field_differences(stored[key], recomputed[key], name)
+        return out
+    return [] if stored == recomputed else [(prefix, stored, recomputed)]
 
 
-def _check_file(role: str, recorded: dict, path: Path, hint: str) -> Difference | None:
-    if not path.exists():
-        raise InputFileError(f"verify: the {role} {str(path)!r} recorded in the manifest does not "
-                             f"exist; {hint}")
+def _text(value) -> str:
+    if value == "(absent)":
+        return value
+    text = json.dumps(value, sort_keys=True, ensure_ascii=False)
+    return text if len(text) <= 200 else text[:197] + "..."
+
+
+def _without_paths(provenance: dict) -> dict:
+    out = json.loads(json.dumps(provenance, default=str))
+    for key in ("input", "site_config"):
+        entries = out.get(key)
+        for entry in entries if isinstance(entries, list) else [entries]:
+            if isinstance(entry, dict):
+                entry.pop("path", None)
+    return out
+
+
+def _compare_manifests(stored: dict, recomputed: dict) -> list:
+    pairs = []
+    for key in _PATH_FREE:
+        pairs += field_differences(stored.get(key, "(absent)"), recomputed.get(key, "(absent)"),
+                                   key)
+    pairs += field_differences(_without_paths(stored.get("provenance", {})),
+                               _without_paths(recomputed.get("provenance", {})), "provenance")
+    tables = {name: {k: v for k, v in entry.items() if k != "sha256"}
+              for name, entry in (stored.get("tables") or {}).items() if isinstance(entry, dict)}
+    again = {name: {k: v for k, v in entry.items() if k != "sha256"}
+             for name, entry in (recomputed.get("tables") or {}).items()}
+    pairs += [p for p in field_differences(tables, again, "tables")
+              if p[0].count(".") > 1]              # whole tables are reported per table
+    known = set(_PATH_FREE) | {"provenance", "tables", "seal", "unhashed", *_ENVIRONMENT_KEYS}
+    for key in sorted(set(stored) - known):
+        pairs.append((key, stored[key], "(absent)"))
+    if stored.get("unhashed") != recomputed.get("unhashed"):
+        pairs.append(("unhashed", stored.get("unhashed"), recomputed.get("unhashed")))
+    out = [Difference("manifest", "manifest", column=name, stored=_text(a), recomputed=_text(b))
+           for name, a, b in pairs[:_MAX_FIELDS_LISTED]]
+    if len(pairs) > _MAX_FIELDS_LISTED:
+        rest = [name for name, _, _ in pairs[_MAX_FIELDS_LISTED:]]
+        out.append(Difference("manifest", "more", stored=", ".join(rest), count=len(rest)))
+    return out
+
+
+def _environment(manifest: dict) -> tuple[list[str], bool]:
+    """Version, code and platform differences; whether the code fingerprint changed."""
+    out = []
+    current = library_versions()
+    for name, recorded in sorted((manifest.get("versions") or {}).items()):
+        if current.get(name) != recorded:
+            out.append(f"{name} {current.get(name, 'not installed')} is installed, the result "
+                       f"was written with {recorded}; numbers may differ in their last digits")
+    code = manifest.get("code") or {}
+    now = code_fingerprint()
+    code_changed = code.get("sha256") != now["sha256"] or code.get("version") != now["version"]
+    if code_changed:
+        out.append(f"code fingerprint differs: the result was written by fluxpart "
+                   f"{code.get('version')} with code {str(code.get('sha256'))[:16]}..., this is "
+                   f"fluxpart {now['version']} with code {now['sha256'][:16]}...; changed code "
+                   "is the likely cause of any difference")
+    differing = platform_differences(manifest.get("platform"), platform_record())
+    if differing:
+        out.append("platform differs in " + "; ".join(differing))
+    return out, code_changed
+
+
+# --------------------------------------------------------------------------- inputs
+
+def _matching(path: Path | None, sha: str | None) -> bool:
+    return path is not None and path.is_file() and file_sha256(path) == sha
+
+
+def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: list):
+    """Return (site config path, difference or None)."""
+    sha = recorded.get("sha256")
+    if given is not None:
+        path = Path(given)
+        if not path.is_file():
+            raise InputFileError(f"verify: the site config {str(path)!r} given with --config "
+                                 "does not exist")
+        if file_sha256(path) != sha:
+            return None, Difference("input", "input", column="site config", row=str(path),
+                                    stored=str(sha), recomputed=file_sha256(path))
+        return path, None
+    path = recorded_path(directory, recorded)
+    if _matching(path, sha):
+        return path, None
+    text = recorded.get("text")
+    if isinstance(text, str):
+        import hashlib
+
+        data = text.encode("utf-8")
+        if hashlib.sha256(data).hexdigest() == sha:
+            copy = scratch / (Path(str(recorded.get("path", "site.toml"))).name or "site.toml")
+            copy.write_bytes(data)
+            where = (f"the file at {str(path)!r} is another version" if path is not None
+                     and path.is_file() else f"it is not at {str(path)!r}")
+            notes.append(f"site config: {where}; used the copy of its text recorded in the "
+                         "manifest (SHA-256 checked)")
+            return copy, None
+    if path is not None and path.is_file():
+        return None, Difference("input", "input", column="site config", row=str(path),
+                                stored=str(sha), recomputed=file_sha256(path))
+    raise InputFileError(f"verify: the site config {str(path)!r} recorded in the manifest "
+                         "does not exist and the manifest holds no copy of it; give it with "
+                         "--config")
+
+
+def _input_file(directory: Path, recorded: dict, given, config_path: Path | None):
+    """Return (input path, difference or None)."""
+    sha = recorded.get("sha256")
+    if given is not None:
+        path = Path(given)
+        if not path.is_file():
+            raise InputFileError(f"verify: the input file {str(path)!r} given with --input "
+                                 "does not exist")
+    else:
+        path = recorded_path(directory, recorded)
+        if not _matching(path, sha) and config_path is not None:
+            from .io import read_site_config
+
+            beside_config = read_site_config(config_path).input_path
+            if _matching(beside_config, sha):
+                path = beside_config
+        if path is None or not path.is_file():
+            raise InputFileError(f"verify: the input file {str(path)!r} recorded in the manifest "
+                                 "(relative to the result folder) does not exist; give its new "
+                                 "location with --input")
     actual = file_sha256(path)
-    if actual != recorded.get("sha256"):
-        return Difference("input", "input", column=role, row=str(path),
-                          stored=str(recorded.get("sha256")), recomputed=actual)
-    return None
+    if actual != sha:
+        return None, Difference("input", "input", column="input file", row=str(path),
+                                stored=str(sha), recomputed=actual)
+    return path, None
 
 
-def _frame_for(provenance: dict, input_path) -> tuple[str, pd.DataFrame | None, list]:
-    """Return (source, canonical frame or None, input differences)."""
+def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch: Path,
+               notes: list):
+    """Return (source, result or None, input differences)."""
+    from .pipeline import process, process_site_config
+
+    provenance = manifest["provenance"]
+    config = Config.from_mapping(manifest["config"], where="manifest config:")
     if "demo" in provenance:
         from . import demo
 
         recorded = provenance["demo"]
-        frame, _ = demo.site_year(seed=recorded.get("seed", 0),
-                                  variant=recorded.get("variant", "c3"))
-        return "demo", frame, []
-    if "input" not in provenance or "site_config" not in provenance:
+        variant = recorded.get("variant", "c3")
+        frame, _ = demo.site_year(seed=recorded.get("seed", 0), variant=variant)
+        result = process(frame, demo.site(variant), config,
+                         provenance={"demo": recorded})
+        return "demo", result, []
+    if not isinstance(provenance.get("input"), dict) or \
+            not isinstance(provenance.get("site_config"), dict):
         raise InputFileError("verify: the manifest records neither an input file and site "
                              "config (fluxpart run) nor a demo seed (fluxpart demo), so the "
                              "result cannot be recomputed")
-    from .io import read_site_config
-    from .io import read_table as read_records
-
-    config_path = Path(provenance["site_config"]["path"])
-    changed = _check_file("site config", provenance["site_config"], config_path,
-                          "restore it (it says how to read the input)")
+    site_config, changed = _site_config(directory, provenance["site_config"], config_path,
+                                        scratch, notes)
     if changed is not None:
         return "run", None, [changed]
-    site_config = read_site_config(config_path)
-    if input_path is not None:
-        data_path = Path(input_path)
-    else:
-        data_path = Path(provenance["input"]["path"])
-        if not data_path.is_absolute() and not data_path.exists():
-            # A relative path was relative to the folder of the run; the site config
-            # (recorded with its absolute path) locates the file the same way.
-            data_path = site_config.input_path
-    changed = _check_file("input file", provenance["input"], data_path,
-                          "give its new location with --input")
+    real_config = None if site_config.parent == scratch else site_config
+    data_path, changed = _input_file(directory, provenance["input"], input_path, real_config)
     if changed is not None:
         return "run", None, [changed]
-    frame, _ = read_records(data_path, **site_config.table_arguments())
-    return "run", frame, []
-
-
-def _compare_manifests(stored: dict, recomputed: dict) -> list:
-    out = []
-    for key in _MANIFEST_KEYS:
-        if stored.get(key) != recomputed.get(key):
-            out.append(Difference("manifest", "manifest", column=key,
-                                  stored=json.dumps(stored.get(key), sort_keys=True),
-                                  recomputed=json.dumps(recomputed.get(key), sort_keys=True)))
-    screening = (stored.get("provenance", {}).get("screening"),
-                 recomputed.get("provenance", {}).get("screening"))
-    if screening[0] != screening[1]:
-        out.append(Difference("manifest", "manifest", column="provenance.screening",
-                              stored=json.dumps(screening[0], sort_keys=True),
-                              recomputed=json.dumps(screening[1], sort_keys=True)))
-    if stored.get("seed") != stored.get("config", {}).get("seed"):
-        out.append(Difference("manifest", "manifest", column="seed",
-                              stored=f"seed {stored.get('seed')!r}",
-                              recomputed=f"config seed {stored.get('config', {}).get('seed')!r} "
-                              "(the one used)"))
-    return out
+    if provenance.get("settings") == "site config":
+        # the settings came from the site config's [processing] table: rerun from it,
+        # so that a setting edited in the manifest is named as a differing field
+        config = Config.from_toml(site_config)
+    return "run", process_site_config(site_config, config, input_path=data_path), []
 
 
 # --------------------------------------------------------------------------- public
 
-def verify(directory, *, input_path=None) -> VerifyReport:
-    """Recompute a result folder from its manifest and compare every table.
+def verify(directory, *, input_path=None, config_path=None, exact: bool = False
+           ) -> VerifyReport:
+    """Recompute a result folder from its manifest and compare everything.
 
     Parameters
     ----------
     directory : path-like
         Folder written by ``fluxpart run``, ``fluxpart demo`` or ``Result.write``.
     input_path : path-like, optional
-        The input file, if it has moved since the run; it must still have the
-        recorded SHA-256.
+        The input file, if it is not where the manifest says (relative to the
+        result folder); it must have the recorded SHA-256.
+    config_path : path-like, optional
+        The site config, likewise; without it, the one at the recorded place or
+        else the copy of its text in the manifest is used.
+    exact : bool, optional
+        Demand bit identity: rounding differences become failures.
 
     Returns
     -------
     VerifyReport
-        ``identical`` is True when every table file has its recorded hash, every
-        table equals its recomputation value for value, and the recorded
-        settings, site and warnings are those of the rerun.
+        See the module docstring for the verdicts.
 
     Raises
     ------
     InputFileError
-        If the folder has no manifest, or the recorded input or site config is
-        missing (the message says how to point to a moved input).
+        If the folder has no manifest, or the recorded input cannot be found
+        (the message says how to point to a moved input).
     ConfigError
-        If the manifest's settings or site are invalid.
+        If the manifest's settings are invalid.
     FluxpartError
         If the recorded input can no longer be read or processed.
-
-    Notes
-    -----
-    The rerun uses the manifest's ``config`` (:meth:`Config.from_mapping`) and
-    ``site``, with the recorded seed; the site config file only tells how to
-    read the input. The recomputed result is written to a temporary folder with
-    the same writer and read back, so both sides pass through the same Parquet
-    conversion. Values are compared exactly (a missing value equals a missing
-    value); equal values in files whose bytes differ (e.g. another pyarrow
-    version) are noted, not failed. An input whose SHA-256 changed is reported
-    as a difference and not recomputed.
     """
-    from .pipeline import process
+    from .resultdir import check_folder
 
-    directory = Path(directory)
+    directory = Path(directory).absolute()
     manifest = read_manifest(directory)
     for key in ("config", "site", "provenance", "tables"):
-        if key not in manifest:
+        if not isinstance(manifest.get(key), dict):
             raise InputFileError(f"verify: {str(directory / 'manifest.json')!r} has no {key!r} "
                                  "entry; it is not a complete fluxpart manifest")
-    versions = manifest.get("versions", {})
-    current = library_versions()
-    version_warnings = tuple(
-        f"{name} {current.get(name, 'not installed')} is installed, the result was written with "
-        f"{recorded}; numbers may differ in their last digits"
-        for name, recorded in sorted(versions.items()) if current.get(name) != recorded)
-    differences, stored_tables = _check_hashes(directory, manifest)
-    provenance = manifest["provenance"]
-    source, frame, input_differences = _frame_for(provenance, input_path)
-    if frame is None:
-        return VerifyReport(directory=directory, source=source,
-                            tables=tuple(sorted(stored_tables)),
-                            differences=tuple(input_differences + differences),
-                            version_warnings=version_warnings)
-    config = Config.from_mapping(manifest["config"], where="manifest config:")
-    site = Site(**manifest["site"])
-    result = process(frame, site, config,
-                     provenance={k: v for k, v in provenance.items() if k != "screening"})
-    notes = []
+    differences = []
+    for problem in check_folder(directory, manifest):
+        kind = {"missing": "file", "entry": "file"}.get(problem.kind, problem.kind)
+        table = next((n for n, e in manifest["tables"].items()
+                      if isinstance(e, dict) and e.get("file") == problem.file), "folder")
+        if kind == "hash":
+            entry = manifest["tables"][table]
+            differences.append(Difference(table, "hash", stored=str(entry.get("sha256")),
+                                          recomputed=file_sha256(directory / problem.file)))
+        elif kind == "file":
+            differences.append(Difference(table, "file", stored=problem.file,
+                                          recomputed=problem.detail))
+        else:
+            differences.append(Difference("folder", kind, column=problem.file,
+                                          stored=problem.detail))
+    stored_tables = {}
+    for name, entry in sorted(manifest["tables"].items()):
+        path = directory / str(entry.get("file", "")) if isinstance(entry, dict) else None
+        if path is None or not path.is_file():
+            continue
+        try:
+            stored_tables[name] = read_table(path)
+        except (FluxpartError, OSError, ValueError) as error:
+            differences.append(Difference(name, "file", stored=entry["file"],
+                                          recomputed=f"unreadable: {error}"))
+    environment, code_changed = _environment(manifest)
+    notes, rounding = [], []
     with tempfile.TemporaryDirectory(prefix="fluxpart-verify-") as scratch:
-        again = result.write(Path(scratch) / "recomputed")
+        scratch = Path(scratch)
+        source, result, input_differences = _recompute(directory, manifest, input_path,
+                                                       config_path, scratch, notes)
+        if result is None:
+            return VerifyReport(directory=directory, source=source,
+                                tables=tuple(sorted(stored_tables)),
+                                differences=tuple(input_differences + differences),
+                                environment=tuple(environment), code_changed=code_changed,
+                                exact=exact, notes=tuple(notes))
+        again = result.write(scratch / "recomputed")
         new_manifest = read_manifest(again)
         differences += _compare_manifests(manifest, new_manifest)
         names = sorted(set(manifest["tables"]) | set(new_manifest["tables"]))
@@ -400,34 +672,34 @@ def verify(directory, *, input_path=None) -> VerifyReport:
             if name not in stored_tables:
                 continue
             recomputed = read_table(again / new_manifest["tables"][name]["file"])
-            found = _compare_table(name, stored_tables[name], recomputed)
-            differences += found
+            found = compare_tables(name, stored_tables[name], recomputed)
+            rounding += [d for d in found if d.kind == "rounding"]
+            differences += [d for d in found if d.kind != "rounding"]
             if not found and (new_manifest["tables"][name]["sha256"]
-                              != manifest["tables"][name]["sha256"]):
-                notes.append(f"{name}: values identical, file bytes differ from the "
+                              != manifest["tables"][name].get("sha256")):
+                notes.append(f"{name}: values bit-identical, file bytes differ from the "
                              "recorded ones (library versions?)")
     return VerifyReport(directory=directory, source=source, tables=tuple(names),
-                        differences=tuple(differences), version_warnings=version_warnings,
-                        notes=tuple(notes))
+                        differences=tuple(differences), rounding=tuple(rounding),
+                        environment=tuple(environment), code_changed=code_changed,
+                        exact=exact, notes=tuple(notes))
 
 
 def command_verify(args) -> int:
-    """``fluxpart verify DIR [--input FILE]``: 0 when identical, 1 when not.
-
-    Parameters
-    ----------
-    args : argparse.Namespace
-        ``directory`` (the result folder) and ``input`` (a moved input file or None).
+    """``fluxpart verify DIR [--input FILE] [--config FILE] [--exact]``.
 
     Returns
     -------
     int
-        0 when every table is reproduced, 1 otherwise. Errors (missing manifest
-        or input) propagate as :class:`~fluxpart.errors.FluxpartError`, which the
-        command line prints as one line with exit status 2.
+        0 when bit-identical or reproduced within floating-point rounding (not
+        with ``--exact``), 1 for any other difference or tampering. Errors
+        (missing manifest or input) propagate as
+        :class:`~fluxpart.errors.FluxpartError`, which the command line prints as
+        one line with exit status 2.
     """
-    report = verify(args.directory, input_path=getattr(args, "input", None))
-    for warning in report.version_warnings:
-        print(f"warning: {warning}", file=sys.stderr)
+    report = verify(args.directory, input_path=getattr(args, "input", None),
+                    config_path=getattr(args, "config", None),
+                    exact=bool(getattr(args, "exact", False)))
     print(report.format())
-    return 0 if report.identical else 1
+    return report.exit_code
+

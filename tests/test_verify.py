@@ -1,9 +1,16 @@
-"""The auditor's rerun: `fluxpart verify` recomputes a result folder and locates differences."""
+"""The auditor's rerun: `fluxpart verify` recomputes a result folder and locates differences.
+
+External facts checked here: IEEE 754 double precision (``numpy.nextafter`` gives the
+adjacent representable value, a "last-bit" change, relative size about 1.1e-16 to
+2.2e-16); SHA-256 from Python's ``hashlib``. Everything else is a fact of the audit
+contract (DESIGN.md §4.1): exit 0 bit-identical or within rounding, 1 otherwise, 2 on error.
+"""
 
 import json
 import shutil
 from pathlib import Path
 
+import numpy as np
 import pyarrow as pa
 import pyarrow.parquet as pq
 import pytest
@@ -12,124 +19,236 @@ from fluxpart import demo
 from fluxpart.cli import main
 from fluxpart.config import Config
 from fluxpart.errors import InputFileError
+from fluxpart.manifest import manifest_seal
 from fluxpart.pipeline import process, process_site_config
-from fluxpart.store import read_table
-from fluxpart.verify import verify
+from fluxpart.store import file_sha256, read_table
+from fluxpart.verify import ROUNDING_TOLERANCE, verify
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
+SHORT_RECORDS = 24 * 2 * 45            # 45 days of half-hours: fast, still partitionable
+
+
+def make_bundle(folder: Path, records: int = SHORT_RECORDS, extra: str = "") -> Path:
+    """A short copy of the example site (fixed u*, few draws) in `folder`; returns the TOML."""
+    folder.mkdir(parents=True, exist_ok=True)
+    lines = (EXAMPLES / "quillmoor_grassland.csv").read_text().splitlines(keepends=True)
+    (folder / "tower.csv").write_text("".join(lines[:records + 1]))
+    text = (EXAMPLES / "quillmoor_grassland.toml").read_text()
+    text = text.replace('path = "quillmoor_grassland.csv"', 'path = "tower.csv"')
+    text += 'ustar_method = "fixed"\nrandom_error_draws = 20\n' + extra
+    (folder / "site.toml").write_text(text)
+    return folder / "site.toml"
 
 
 @pytest.fixture(scope="module")
-def demo_folder(tmp_path_factory):
-    """A demo result folder as `fluxpart demo` writes it (few u* bootstrap draws, for speed)."""
-    frame, _ = demo.site_year(seed=0)
-    result = process(frame, demo.site(), Config(ustar_bootstrap_draws=10),
-                     provenance={"demo": {"seed": 0, "variant": "c3"}})
-    return result.write(tmp_path_factory.mktemp("verify") / "demo")
-
-
-def _copy(folder, tmp_path) -> Path:
-    target = tmp_path / "copy"
-    shutil.copytree(folder, target)
-    return target
-
-
-def _edit_manifest(folder, change):
-    path = folder / "manifest.json"
-    manifest = json.loads(path.read_text(encoding="utf-8"))
-    change(manifest)
-    path.write_text(json.dumps(manifest, indent=2), encoding="utf-8")
-
-
-def test_untouched_output_is_identical(demo_folder, capsys):
-    """`fluxpart verify DIR` on an untouched folder prints 'identical' and exits 0."""
-    assert main(["verify", str(demo_folder)]) == 0
-    out = capsys.readouterr().out
-    assert out.startswith("identical")
-    assert "not a certified credit" in out           # the caution of the manifest
-
-
-def test_altered_parquet_value_is_located(demo_folder, tmp_path, capsys):
-    """One hand-altered value: a hash mismatch and its table, column, row and both values."""
-    folder = _copy(demo_folder, tmp_path)
-    path = folder / "annual.parquet"
-    table = pq.read_table(path)
-    position = table.schema.get_field_index("nee")
-    original = table.column("nee").to_pylist()
-    changed = [original[0] + 1.0, *original[1:]]
-    table = table.set_column(position, table.schema.field(position),
-                             pa.array(changed, type=pa.float64()))
-    pq.write_table(table, path)
-    assert read_table(path).loc[2021, "nee"] == changed[0]
-
-    assert main(["verify", str(folder)]) == 1
-    out = capsys.readouterr().out
-    assert out.startswith("NOT identical")
-    assert "annual: file SHA-256" in out and "recorded in manifest.json" in out
-    assert (f"annual: column 'nee' at year=2021: stored {changed[0]!r}, recomputed "
-            f"{original[0]!r}") in out
-    assert "timeseries" not in out                   # the other tables still match
-
-
-def test_edited_manifest_config_is_detected(demo_folder, tmp_path):
-    """An edited setting changes the rerun; an edited table hash and versions are reported."""
-    folder = _copy(demo_folder, tmp_path)
-
-    def change(manifest):
-        manifest["config"]["rg_tolerance"] = 40.0
-        manifest["tables"]["ustar"]["sha256"] = "0" * 64
-        manifest["versions"]["numpy"] = "0.0.1"
-
-    _edit_manifest(folder, change)
-    report = verify(folder)
-    assert not report.identical
-    kinds = {(d.table, d.kind) for d in report.differences}
-    assert ("ustar", "hash") in kinds
-    assert ("timeseries", "value") in kinds and ("annual", "value") in kinds
-    filled = next(d for d in report.differences
-                  if d.table == "timeseries" and d.column == "nee_filled")
-    assert filled.row.startswith("time=2021-") and filled.stored != filled.recomputed
-    assert any(w.startswith("numpy ") and "written with 0.0.1" in w
-               for w in report.version_warnings)
+def bundle(tmp_path_factory):
+    """A pristine bundle: site config, input and result folder `out` beside them."""
+    root = tmp_path_factory.mktemp("bundle")
+    config = make_bundle(root)
+    process_site_config(config).write(root / "out")
+    return root
 
 
 @pytest.fixture
-def run_folder(tmp_path):
-    """`fluxpart run` on a copy of the example site (u* bootstrap off for speed)."""
-    for name in ("quillmoor_grassland.toml", "quillmoor_grassland.csv"):
-        shutil.copy(EXAMPLES / name, tmp_path / name)
-    config_path = tmp_path / "quillmoor_grassland.toml"
-    result = process_site_config(config_path, Config(seed=0, ustar_bootstrap_draws=0))
-    return result.write(tmp_path / "out"), tmp_path / "quillmoor_grassland.csv"
+def copy(bundle, tmp_path):
+    """A private copy of the bundle (to edit or move)."""
+    target = tmp_path / "bundle"
+    shutil.copytree(bundle, target)
+    return target
 
 
-def test_run_is_identical_then_a_changed_input_fails(run_folder, capsys):
-    """A run reproduces; after one changed byte of the input, verify names both hashes."""
-    folder, csv = run_folder
-    assert verify(folder).identical
-    recorded = json.loads((folder / "manifest.json").read_text())["provenance"]["input"]["sha256"]
-    lines = csv.read_text().splitlines(keepends=True)
-    fields = lines[1].rstrip("\n").split(",")
-    fields[1] = f"{float(fields[1]) + 1.0:.3f}"        # the first NEE value, +1 µmol m-2 s-1
-    lines[1] = ",".join(fields) + "\n"
-    csv.write_text("".join(lines))
-    assert main(["verify", str(folder)]) == 1
+def _edit_manifest(folder, change, reseal=False):
+    path = folder / "manifest.json"
+    manifest = json.loads(path.read_text(encoding="utf-8"))
+    change(manifest)
+    if reseal:
+        manifest["seal"] = manifest_seal(manifest)
+    path.write_text(json.dumps(manifest, indent=2), encoding="utf-8")
+
+
+def _set_value(folder, table, column, change, reseal=True):
+    """Change the first value of a column; with `reseal`, update hash and seal as a writer would."""
+    path = folder / f"{table}.parquet"
+    arrow = pq.read_table(path)
+    position = arrow.schema.get_field_index(column)
+    values = arrow.column(column).to_pylist()
+    values[0] = change(values[0])
+    arrow = arrow.set_column(position, arrow.schema.field(position),
+                             pa.array(values, type=pa.float64()))
+    pq.write_table(arrow, path)
+    if reseal:
+        _edit_manifest(folder, lambda m: m["tables"][table].update(sha256=file_sha256(path)),
+                       reseal=True)
+    return values[0]
+
+
+def test_untouched_result_is_bit_identical(bundle, capsys):
+    """`fluxpart verify DIR` on an untouched folder says 'bit-identical' and exits 0."""
+    assert main(["verify", str(bundle / "out")]) == 0
     out = capsys.readouterr().out
-    assert "input file" in out and recorded in out
+    assert out.startswith("bit-identical")
+    assert "not a certified credit" in out           # the caution of the manifest
 
 
-def test_moved_input_is_a_clear_error_or_found_with_option(run_folder, tmp_path, capsys):
-    """A missing input exits 2 naming the file; `--input` points to where it moved."""
-    folder, csv = run_folder
-    moved = tmp_path / "archive" / csv.name
-    moved.parent.mkdir()
-    csv.rename(moved)
-    assert main(["verify", str(folder)]) == 2
+def test_moved_bundle_verifies_without_options(bundle, tmp_path):
+    """Result, input and config moved together: found through the recorded relative paths."""
+    moved = tmp_path / "elsewhere" / "deeper"
+    shutil.copytree(bundle, moved)
+    manifest = json.loads((moved / "out" / "manifest.json").read_text())
+    assert manifest["provenance"]["input"]["path"] == "../tower.csv"
+    assert not Path(manifest["provenance"]["site_config"]["path"]).is_absolute()
+    report = verify(moved / "out")
+    assert report.identical and report.exit_code == 0
+
+
+def test_result_moved_alone_needs_input_and_uses_the_recorded_config(bundle, tmp_path, capsys):
+    """Only the result travelled: exit 2 naming --input; with --input (and --config) exit 0."""
+    alone = tmp_path / "received" / "out"
+    shutil.copytree(bundle / "out", alone)
+    inbox = tmp_path / "inbox"
+    inbox.mkdir()
+    shutil.copy(bundle / "tower.csv", inbox / "renamed.csv")
+    shutil.copy(bundle / "site.toml", inbox / "renamed.toml")
+    assert main(["verify", str(alone)]) == 2
+    assert "--input" in capsys.readouterr().err
+    assert main(["verify", str(alone), "--input", str(inbox / "renamed.csv")]) == 0
+    out = capsys.readouterr().out
+    assert "recorded in the manifest" in out          # the config was rebuilt from its text
+    assert main(["verify", str(alone), "--input", str(inbox / "renamed.csv"),
+                 "--config", str(inbox / "renamed.toml")]) == 0
+
+
+def test_another_input_or_config_is_named(copy, capsys):
+    """One changed byte of the input, or another config given, exits 1 naming both hashes."""
+    recorded = json.loads((copy / "out" / "manifest.json").read_text())["provenance"]
+    other = copy / "other.toml"
+    other.write_text((copy / "site.toml").read_text() + "despike_z = 5.0\n")
+    assert main(["verify", str(copy / "out"), "--config", str(other)]) == 1
+    out = capsys.readouterr().out
+    assert "site config" in out and recorded["site_config"]["sha256"] in out
+    lines = (copy / "tower.csv").read_text().splitlines(keepends=True)
+    fields = lines[1].rstrip("\n").split(",")
+    fields[1] = f"{float(fields[1]) + 1.0:.3f}"
+    lines[1] = ",".join(fields) + "\n"
+    (copy / "tower.csv").write_text("".join(lines))
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert "input file" in out and recorded["input"]["sha256"] in out
+
+
+def test_manifest_edits_are_tampering_and_each_field_is_named(copy, capsys):
+    """Edited site, caution, reader record, setting and version: exit 1, every field named."""
+    def change(manifest):
+        manifest["site"]["name"] = "Another tower"
+        manifest["caution"] = "Certified credits."
+        manifest["provenance"]["reader"]["records_read"] += 1
+        manifest["config"]["rg_tolerance"] = 40.0
+        manifest["versions"]["numpy"] = "0.0.1"
+
+    _edit_manifest(copy / "out", change)
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert "manifest.json was edited after it was written" in out
+    for name in ("'site.name'", "'caution'", "'provenance.reader.records_read'",
+                 "'config.rg_tolerance'"):
+        assert f"manifest field {name} differs" in out, name
+    assert "numpy" in out and "written with 0.0.1" in out
+    with pytest.raises(InputFileError, match="manifest.json: was edited"):
+        import fluxpart
+
+        fluxpart.load(copy / "out")
+
+
+def test_resealed_manifest_edit_is_still_caught_by_the_rerun(copy):
+    """A tamperer who recomputes the seal still fails on the field that differs."""
+    _edit_manifest(copy / "out", lambda m: m["site"].update(name="Another tower"), reseal=True)
+    report = verify(copy / "out")
+    assert report.exit_code == 1
+    assert [d.column for d in report.differences] == ["site.name"]
+
+
+def test_extra_and_missing_files_are_named(copy, capsys):
+    """A stale table left in the folder and a deleted one: exit 1, both named; load refuses."""
+    shutil.copy(copy / "out" / "daily.parquet", copy / "out" / "parameters_old.parquet")
+    (copy / "out" / "audit.parquet").unlink()
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert "parameters_old.parquet is not listed in the manifest" in out
+    assert "audit: audit.parquet" in out and "missing" in out
+    assert main(["report", str(copy / "out")]) == 2
     err = capsys.readouterr().err
-    assert csv.name in err and "--input" in err and "Traceback" not in err
-    with pytest.raises(InputFileError, match="does not exist"):
-        verify(folder)
-    assert main(["verify", str(folder), "--input", str(moved)]) == 0
+    assert "does not match its manifest: audit.parquet" in err and "1 more problem" in err
+
+
+def test_altered_parquet_value_is_located(copy, capsys):
+    """A hand-altered value: a hash mismatch and its table, column, row and both values."""
+    original = float(read_table(copy / "out" / "annual.parquet")["nee"].iloc[0])
+    changed = _set_value(copy / "out", "annual", "nee", lambda v: v + 1.0, reseal=False)
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert out.startswith("NOT reproduced")
+    assert "annual: file SHA-256" in out and "recorded in manifest.json" in out
+    year = read_table(copy / "out" / "annual.parquet").index[0]
+    assert (f"annual: column 'nee' at year={year}: stored {changed!r}, recomputed "
+            f"{original!r}") in out
+    assert "timeseries" not in out                    # the other tables still match
+
+
+def test_last_bit_change_is_rounding_and_exact_refuses_it(copy, capsys):
+    """A one-ulp change in a consistent folder (as another CPU gives) is rounding: exit 0.
+
+    ``numpy.nextafter`` moves the value to the adjacent double (IEEE 754), a relative
+    change of at most 2.2e-16, far under the tolerance; `--exact` demands bit identity.
+    """
+    _set_value(copy / "out", "daily", "nee", lambda v: float(np.nextafter(v, np.inf)))
+    report = verify(copy / "out")
+    assert report.reproduced and not report.identical
+    assert 0 < report.largest_relative_difference <= 2.3e-16
+    assert main(["verify", str(copy / "out")]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("reproduced within floating-point rounding (largest relative "
+                          "difference")
+    assert "daily: column 'nee' within rounding" in out
+    assert main(["verify", str(copy / "out"), "--exact"]) == 1
+    assert "NOT bit-identical (--exact)" in capsys.readouterr().out
+
+
+def test_change_beyond_the_tolerance_is_not_rounding(copy):
+    """A relative change 100 times the tolerance in a consistent folder: exit 1."""
+    _set_value(copy / "out", "daily", "nee", lambda v: v * (1 + 100 * ROUNDING_TOLERANCE))
+    report = verify(copy / "out")
+    assert report.exit_code == 1
+    assert [(d.table, d.column, d.kind) for d in report.differences] == [
+        ("daily", "nee", "value")]
+
+
+def test_changed_code_fingerprint_is_named_as_likely_cause(copy, monkeypatch, capsys):
+    """Other code: reported as environment; with a differing value, named as likely cause."""
+    import fluxpart.verify as module
+
+    real = module.code_fingerprint()
+    monkeypatch.setattr(module, "code_fingerprint",
+                        lambda: {**real, "sha256": "f" * 64})
+    assert main(["verify", str(copy / "out")]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("bit-identical") and "code fingerprint differs" in out
+    _set_value(copy / "out", "daily", "nee", lambda v: v + 1.0)
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert "likely cause: the product's code differs" in out
+
+
+def test_demo_result_is_regenerated_and_verified(tmp_path):
+    """A `fluxpart demo` result is recomputed from its seed (few draws, for speed)."""
+    frame, _ = demo.site_year(seed=0)
+    frame = frame.iloc[:SHORT_RECORDS]
+    # a short demo record is not what demo.site_year regenerates: the rerun must differ
+    result = process(frame, demo.site(), Config(ustar_method="fixed", random_error_draws=20),
+                     provenance={"demo": {"seed": 0, "variant": "c3"}})
+    folder = result.write(tmp_path / "demo")
+    report = verify(folder)
+    assert report.exit_code == 1 and report.source == "demo"
+    assert any(d.kind == "rows" for d in report.differences)
 
 
 def test_folder_without_manifest_is_a_clear_error(tmp_path, capsys):

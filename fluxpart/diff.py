@@ -1,0 +1,214 @@
+"""``fluxpart diff A B``: what differs between two result folders, and what it did to the budget.
+
+An auditor handed an operator's rerun that gives another budget needs to see
+why: another input file, another setting, other library versions, changed code,
+another machine. :func:`diff_folders` reads both folders (each must match its
+own manifest, see :func:`fluxpart.resultdir.read_folder`) and lists
+
+- the SHA-256 of the input file(s) and of the site config;
+- each setting, the site, the seed, the reader's record and the warnings that differ;
+- each library version, the code fingerprint and the platform facts that differ;
+- the tables whose bytes differ;
+- how each annual number moved: both values, the change (second minus first)
+  and the change relative to the first value's magnitude.
+
+Exit statuses of the command: 0 when the two folders hold the same result from
+the same input, settings, code and platform (paths, the run log and report
+pages do not count), 1 when anything listed differs, 2 on error (a folder that
+is missing, not a result folder, or does not match its manifest).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from .fingerprint import platform_differences
+from .manifest import CAUTION
+
+__all__ = ["DiffReport", "command_diff", "diff_folders"]
+
+_SECTIONS = (("site", "site"), ("config", "setting"), ("seed", "seed"),
+             ("warnings", "warnings"), ("caution", "caution"), ("format", "format"))
+
+
+@dataclass(frozen=True)
+class DiffReport:
+    """The outcome of :func:`diff_folders`.
+
+    Attributes
+    ----------
+    first, second : pathlib.Path
+        The two folders.
+    items : tuple of (str, str, str, str)
+        ``(section, name, first value, second value)`` for everything that differs
+        apart from the annual numbers; sections are ``"input"``, ``"setting"``,
+        ``"site"``, ``"seed"``, ``"reader"``, ``"warnings"``, ``"caution"``,
+        ``"format"``, ``"version"``, ``"code"``, ``"platform"`` and ``"table"``.
+    annual : pandas.DataFrame
+        One row per (year, column) of ``annual`` whose value differs: ``first``,
+        ``second``, ``change`` (second - first, in the column's unit) and
+        ``relative`` (change / |first|; NaN when first is 0 or missing).
+    same_annual : int
+        Annual values that are equal in both folders.
+    """
+
+    first: Path
+    second: Path
+    items: tuple = ()
+    annual: pd.DataFrame = field(default_factory=pd.DataFrame)
+    same_annual: int = 0
+
+    @property
+    def same(self) -> bool:
+        """True when nothing differs."""
+        return not self.items and self.annual.empty
+
+    @property
+    def exit_code(self) -> int:
+        """0 when the same, 1 when anything differs."""
+        return 0 if self.same else 1
+
+    def format(self) -> str:
+        """The report as text for the command line."""
+        lines = [f"fluxpart diff: {self.first} (first) vs {self.second} (second)"]
+        if self.same:
+            lines.append(f"same: input, settings, site, versions, code, platform and all "
+                         f"{self.same_annual} annual values are equal")
+        else:
+            lines.append(f"differ: {len(self.items)} recorded item(s) and {len(self.annual)} "
+                         "annual value(s)")
+            width = max((len(f"{s} {n}") for s, n, _, _ in self.items), default=0)
+            for section, name, a, b in self.items:
+                lines.append(f"  {f'{section} {name}':<{width}}  first {a}  second {b}")
+            if not self.annual.empty:
+                lines.append("How the annual numbers moved (units of each column; change = "
+                             "second - first; relative = change / |first|):")
+                shown = self.annual.copy()
+                lines.append(shown.to_string(float_format=lambda v: f"{v:.6g}", na_rep="-"))
+            lines.append(f"annual values equal in both: {self.same_annual}")
+        lines.append(f"Caution: {CAUTION}")
+        return "\n".join(lines)
+
+
+def _short(value) -> str:
+    import json
+
+    text = value if isinstance(value, str) else json.dumps(value, sort_keys=True, default=str)
+    return text if len(text) <= 120 else text[:117] + "..."
+
+
+def _entries(provenance: dict, key: str) -> list:
+    entries = provenance.get(key)
+    return entries if isinstance(entries, list) else [entries] if entries else []
+
+
+def _recorded_items(first: dict, second: dict) -> list:
+    from .verify import field_differences
+
+    items = []
+    a_prov, b_prov = first.get("provenance") or {}, second.get("provenance") or {}
+    for key, label in (("input", "input file"), ("site_config", "site config")):
+        a = [e.get("sha256") for e in _entries(a_prov, key) if isinstance(e, dict)]
+        b = [e.get("sha256") for e in _entries(b_prov, key) if isinstance(e, dict)]
+        if a != b:
+            items.append(("input", f"{label} SHA-256", _short(a[0] if len(a) == 1 else a),
+                          _short(b[0] if len(b) == 1 else b)))
+    if a_prov.get("demo") != b_prov.get("demo"):
+        items.append(("input", "demo record", _short(a_prov.get("demo")),
+                      _short(b_prov.get("demo"))))
+    for key, section in _SECTIONS:
+        for name, a, b in field_differences(first.get(key), second.get(key), ""):
+            items.append((section, name or key, _short(a), _short(b)))
+    for name, a, b in field_differences(a_prov.get("reader"), b_prov.get("reader"), ""):
+        items.append(("reader", name or "record", _short(a), _short(b)))
+    for name, a, b in field_differences(a_prov.get("screening"), b_prov.get("screening"), ""):
+        items.append(("reader", f"screening {name}".strip(), _short(a), _short(b)))
+    for name, a, b in field_differences(first.get("versions"), second.get("versions"), ""):
+        items.append(("version", name, _short(a), _short(b)))
+    a_code, b_code = first.get("code") or {}, second.get("code") or {}
+    for key in ("version", "sha256"):
+        if a_code.get(key) != b_code.get(key):
+            items.append(("code", "fingerprint" if key == "sha256" else "version",
+                          _short(a_code.get(key)), _short(b_code.get(key))))
+    for phrase in platform_differences(first.get("platform"), second.get("platform")):
+        items.append(("platform", phrase, "", ""))
+    a_tables, b_tables = first.get("tables") or {}, second.get("tables") or {}
+    for name in sorted(set(a_tables) | set(b_tables)):
+        a = (a_tables.get(name) or {}).get("sha256", "(absent)")
+        b = (b_tables.get(name) or {}).get("sha256", "(absent)")
+        if a != b:
+            items.append(("table", f"{name} bytes", a[:16], b[:16]))
+    return items
+
+
+def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFrame, int]:
+    rows, same = [], 0
+    years = first.index.union(second.index)
+    columns = list(first.columns) + [c for c in second.columns if c not in first.columns]
+    for year in years:
+        for column in columns:
+            a = first.at[year, column] if year in first.index and column in first.columns \
+                else None
+            b = second.at[year, column] if year in second.index and column in second.columns \
+                else None
+            numeric = all(v is None or isinstance(v, (int, float, np.integer, np.floating))
+                          and not isinstance(v, (bool, np.bool_)) for v in (a, b))
+            if numeric:
+                fa = np.nan if a is None else float(a)
+                fb = np.nan if b is None else float(b)
+                equal = (np.isnan(fa) and np.isnan(fb)) or fa == fb
+                if equal and a is not None and b is not None:
+                    same += 1
+                    continue
+                change = fb - fa
+                relative = change / abs(fa) if np.isfinite(fa) and fa != 0 else np.nan
+                rows.append({"year": year, "column": column, "first": fa, "second": fb,
+                             "change": change, "relative": relative})
+            else:
+                if a is not None and b is not None and (a == b or (pd.isna(a) and pd.isna(b))):
+                    same += 1
+                    continue
+                rows.append({"year": year, "column": column, "first": a, "second": b,
+                             "change": np.nan, "relative": np.nan})
+    table = pd.DataFrame(rows, columns=["year", "column", "first", "second", "change",
+                                        "relative"])
+    return table.set_index(["year", "column"]), same
+
+
+def diff_folders(first, second) -> DiffReport:
+    """Compare two result folders.
+
+    Parameters
+    ----------
+    first, second : path-like
+        Result folders; each must match its own manifest.
+
+    Returns
+    -------
+    DiffReport
+
+    Raises
+    ------
+    InputFileError
+        If a folder is not a result folder or does not match its manifest.
+    """
+    from .resultdir import read_folder
+
+    first, second = Path(first), Path(second)
+    a_manifest, a_tables = read_folder(first)
+    b_manifest, b_tables = read_folder(second)
+    items = _recorded_items(a_manifest, b_manifest)
+    annual, same = _annual_moves(a_tables["annual"], b_tables["annual"])
+    return DiffReport(first=first, second=second, items=tuple(items), annual=annual,
+                      same_annual=same)
+
+
+def command_diff(args) -> int:
+    """``fluxpart diff A B``: 0 when the same, 1 when they differ (errors exit 2)."""
+    report = diff_folders(args.first, args.second)
+    print(report.format())
+    return report.exit_code

@@ -1,0 +1,151 @@
+"""What produced a result: the product's own code and the machine's numerical platform.
+
+Two results computed from the same input and settings can still differ:
+
+- because the **code** differs. The version string alone does not show this
+  (it changes only at a release), so :func:`code_fingerprint` hashes the source
+  of the installed package itself;
+- because the **platform** differs. NumPy picks SIMD kernels by the CPU features
+  it finds at run time, and the BLAS library (OpenBLAS, MKL, Accelerate) picks
+  its own kernels and thread split; each changes the order of floating-point
+  operations and so the last bits of sums and fits. :func:`platform_record`
+  lists those choices.
+
+Both go into ``manifest.json`` so that ``fluxpart verify`` and ``fluxpart diff``
+can name the likely cause of a difference. Neither holds a user name, a host
+name or a time, so they do not make two runs of one machine differ.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import platform
+from functools import lru_cache
+from pathlib import Path
+
+__all__ = ["code_fingerprint", "platform_differences", "platform_record"]
+
+
+@lru_cache(maxsize=1)
+def _package_digest(package_dir: str) -> tuple[str, int]:
+    digest = hashlib.sha256()
+    files = sorted(p for p in Path(package_dir).rglob("*.py") if "__pycache__" not in p.parts)
+    for path in files:
+        relative = path.relative_to(package_dir).as_posix()
+        digest.update(relative.encode("utf-8") + b"\0")
+        digest.update(hashlib.sha256(path.read_bytes()).hexdigest().encode("ascii") + b"\n")
+    return digest.hexdigest(), len(files)
+
+
+def code_fingerprint() -> dict:
+    """Return the version and a SHA-256 over the source files of the running package.
+
+    Returns
+    -------
+    dict
+        ``version`` (the package version), ``sha256`` (hash over the sorted
+        relative paths and SHA-256 of every ``.py`` file of the package, so any
+        edited constant, added or removed module changes it) and ``files`` (how
+        many were hashed).
+
+    Notes
+    -----
+    Computed once per process: a result written after the package's files were
+    edited in the same process still carries the fingerprint of the code that
+    was loaded, which is the code that ran.
+    """
+    from . import __version__
+
+    package_dir = str(Path(__file__).resolve().parent)
+    sha, count = _package_digest(package_dir)
+    return {"version": __version__, "sha256": sha, "files": count}
+
+
+def _cpu_features() -> list[str]:
+    try:
+        from numpy._core._multiarray_umath import __cpu_features__
+    except ImportError:  # pragma: no cover - older NumPy layout
+        try:
+            from numpy.core._multiarray_umath import __cpu_features__
+        except ImportError:
+            return []
+    return sorted(name for name, present in __cpu_features__.items() if present)
+
+
+def _blas_libraries() -> list[dict]:
+    try:
+        from threadpoolctl import threadpool_info
+    except ImportError:  # pragma: no cover - threadpoolctl is a core dependency
+        return []
+    keys = ("user_api", "internal_api", "prefix", "version", "architecture",
+            "threading_layer", "num_threads")
+    found = [{key: info.get(key) for key in keys} for info in threadpool_info()]
+    return sorted(found, key=lambda entry: (str(entry["user_api"]), str(entry["prefix"])))
+
+
+def platform_record() -> dict:
+    """Return the facts of this machine that can change the last bits of a result.
+
+    Returns
+    -------
+    dict
+        ``machine`` and ``system`` (CPU architecture, operating system),
+        ``byteorder``, ``numpy_cpu_features`` (the SIMD features NumPy found and
+        uses for its kernels), ``numpy_simd`` (baseline and dispatched SIMD
+        targets from NumPy's build configuration), ``numpy_blas`` (the BLAS NumPy
+        was built against, with its version) and ``blas`` (every BLAS/OpenMP pool
+        loaded, from ``threadpoolctl``: implementation, version, CPU kernel
+        architecture and thread count).
+    """
+    import sys
+
+    import numpy as np
+
+    try:
+        config = np.show_config(mode="dicts")
+    except TypeError:  # pragma: no cover - NumPy < 1.26 has no dict mode
+        config = {}
+    simd = config.get("SIMD Extensions", {}) or {}
+    blas = (config.get("Build Dependencies", {}) or {}).get("blas", {}) or {}
+    return {
+        "machine": platform.machine(),
+        "system": platform.system(),
+        "byteorder": sys.byteorder,
+        "numpy_cpu_features": _cpu_features(),
+        "numpy_simd": {"baseline": list(simd.get("baseline", []) or []),
+                       "found": list(simd.get("found", []) or [])},
+        "numpy_blas": {"name": blas.get("name"), "version": blas.get("version")},
+        "blas": _blas_libraries(),
+    }
+
+
+def platform_differences(recorded: dict | None, current: dict | None) -> list[str]:
+    """Name each platform fact that differs, e.g. ``"numpy_cpu_features (AVX2 absent)"``.
+
+    Parameters
+    ----------
+    recorded, current : dict or None
+        Two :func:`platform_record` results (None: not recorded).
+
+    Returns
+    -------
+    list of str
+        One short phrase per differing key; empty when the platforms agree.
+    """
+    if not recorded or not current:
+        return [] if recorded == current else ["platform (not recorded on one side)"]
+    out = []
+    for key in sorted(set(recorded) | set(current)):
+        a, b = recorded.get(key), current.get(key)
+        if a == b:
+            continue
+        if key == "numpy_cpu_features" and isinstance(a, list) and isinstance(b, list):
+            gone, new = sorted(set(a) - set(b)), sorted(set(b) - set(a))
+            parts = ([f"{', '.join(gone)} only in the first"] if gone else []) + (
+                [f"{', '.join(new)} only in the second"] if new else [])
+            out.append(f"{key} ({'; '.join(parts)})")
+        elif isinstance(a, (str, int, float)) or isinstance(b, (str, int, float)):
+            out.append(f"{key} ({a} vs {b})")
+        else:
+            out.append(key)
+    return out

@@ -1,0 +1,526 @@
+"""A result folder replaced as a whole or not at all, and read only when it is intact.
+
+Writing (:func:`write_folder`):
+
+1. take an advisory lock on ``.OUT.lock`` beside the folder ``OUT`` (the
+   :mod:`filelock` library; a second writer waits for it, saying so on stderr,
+   and gives up with an :class:`~fluxpart.errors.OutputError` after
+   ``lock_timeout`` seconds);
+2. clean what an interrupted earlier run left beside the folder (see below);
+3. write every table, the run log and, last, ``manifest.json`` into a fresh
+   staging folder ``.OUT.staging-*`` beside ``OUT``, each file flushed to disk;
+4. swap the staging folder in: on Linux one ``renameat2(RENAME_EXCHANGE)``
+   system call exchanges the two folders atomically; elsewhere the old folder
+   is renamed to ``.OUT.retired-*`` and the new one renamed to ``OUT``;
+5. remove the old folder.
+
+A crash (kill -9, power cut, full disk) at any moment therefore leaves ``OUT``
+holding either the old complete result or the new complete one. The only
+exception is the instant between the two renames of the fallback of step 4,
+when ``OUT`` is absent and the old result sits in ``.OUT.retired-*``: the next
+writer, and :func:`read_folder` when it finds ``OUT`` missing, move it back.
+Leftover staging and retired folders are removed by the next writer.
+
+Reading (:func:`read_folder`, used by ``fluxpart.load``, ``report`` and
+``verify``): the manifest's seal must match its content, every table must have
+its recorded SHA-256, and the folder must hold nothing else than the manifest,
+its tables and the two unhashed entries it names (the run log and the
+``report/`` folder). Otherwise the folder is refused, naming the file.
+"""
+
+from __future__ import annotations
+
+import ctypes
+import ctypes.util
+import errno
+import getpass
+import os
+import secrets
+import shutil
+import socket
+import sys
+import tempfile
+from contextlib import contextmanager
+from dataclasses import dataclass
+from datetime import datetime, timezone
+from pathlib import Path
+
+from .errors import InputFileError, OutputError
+from .fingerprint import code_fingerprint, platform_record
+from .manifest import (
+    MANIFEST_FILE,
+    MANIFEST_FORMAT,
+    REPORT_FOLDER,
+    RUN_LOG,
+    build_manifest,
+    library_versions,
+    manifest_bytes,
+    read_manifest,
+    seal_intact,
+)
+from .store import atomic_write_bytes, file_sha256, read_table, write_table
+
+__all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_leftovers",
+           "folder_lock", "lock_file", "read_folder", "write_folder"]
+
+#: Seconds a writer waits for another writer of the same folder before giving up.
+DEFAULT_LOCK_TIMEOUT = 600.0
+_STAGING = "staging-"
+_RETIRED = "retired-"
+_DIR_MODE = 0o755
+
+
+# --------------------------------------------------------------------------- names and lock
+
+def _absolute(directory) -> Path:
+    path = Path(os.path.abspath(os.fspath(directory)))
+    return path.resolve() if path.is_symlink() else path
+
+
+def _sibling(directory: Path, kind: str, token: str = "") -> Path:
+    return directory.parent / f".{directory.name}.{kind}{token}"
+
+
+def lock_file(directory) -> Path:
+    """The lock file of a result folder: ``.NAME.lock`` beside it."""
+    directory = _absolute(directory)
+    return directory.parent / f".{directory.name}.lock"
+
+
+def _leftovers(directory: Path, kind: str) -> list[Path]:
+    prefix = f".{directory.name}.{kind}"
+    try:
+        return sorted(p for p in directory.parent.iterdir()
+                      if p.name.startswith(prefix) and p.is_dir() and not p.is_symlink())
+    except OSError:
+        return []
+
+
+@contextmanager
+def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None):
+    """Hold the advisory lock of a result folder.
+
+    Parameters
+    ----------
+    directory : path-like
+        The result folder (need not exist; its parent must be writable).
+    timeout : float, optional
+        Seconds to wait for another holder; 0 refuses at once.
+    notify : callable, optional
+        Called with one line of text when the lock is busy and we wait
+        (default: printed to stderr).
+
+    Raises
+    ------
+    OutputError
+        If the lock cannot be taken in time or the lock file cannot be created.
+    """
+    from filelock import FileLock, Timeout
+
+    path = lock_file(directory)
+    lock = FileLock(str(path))
+    try:
+        try:
+            lock.acquire(timeout=0)
+        except Timeout:
+            if timeout <= 0:
+                raise OutputError(f"{str(_absolute(directory))!r} is being written by another "
+                                  f"fluxpart process (lock file {str(path)!r}); wait for it to "
+                                  "finish or choose another output folder") from None
+            say = notify if notify is not None else (
+                lambda text: print(text, file=sys.stderr, flush=True))
+            say(f"note: another fluxpart process is writing {str(_absolute(directory))!r}; "
+                f"waiting up to {timeout:g} s for it (lock file {str(path)!r})")
+            try:
+                lock.acquire(timeout=timeout)
+            except Timeout:
+                raise OutputError(f"gave up after {timeout:g} s waiting for another fluxpart "
+                                  f"process writing {str(_absolute(directory))!r} (lock file "
+                                  f"{str(path)!r}); if no such process runs, delete the lock "
+                                  "file") from None
+    except OSError as error:
+        raise OutputError(f"cannot create the lock file {str(path)!r} beside the output folder: "
+                          f"{error.strerror or error}; choose a writable output folder") from None
+    try:
+        yield path
+    finally:
+        lock.release()
+
+
+def clean_leftovers(directory) -> list[str]:
+    """Repair and tidy what an interrupted write left beside `directory`.
+
+    Call it holding :func:`folder_lock`. When ``directory`` is missing but a
+    retired copy (the old complete result, moved aside just before the new one
+    was to be renamed in) exists, that copy is moved back. Then every staging and
+    retired folder of `directory` is removed.
+
+    Returns
+    -------
+    list of str
+        What was done, one line per action (empty when nothing was left over).
+    """
+    directory = _absolute(directory)
+    done = []
+    if not directory.exists():
+        complete = [p for p in _leftovers(directory, _RETIRED) if (p / MANIFEST_FILE).is_file()]
+        if complete:
+            newest = max(complete, key=lambda p: p.stat().st_mtime)
+            newest.rename(directory)
+            _fsync_dir(directory.parent)
+            done.append(f"restored the earlier result from {newest.name}")
+    for leftover in _leftovers(directory, _STAGING) + _leftovers(directory, _RETIRED):
+        shutil.rmtree(leftover, ignore_errors=True)
+        done.append(f"removed {leftover.name}")
+    return done
+
+
+# --------------------------------------------------------------------------- swapping
+
+def _fsync_dir(path: Path) -> None:
+    try:
+        handle = os.open(path, os.O_RDONLY)
+    except OSError:
+        return
+    try:
+        os.fsync(handle)
+    except OSError:
+        pass
+    finally:
+        os.close(handle)
+
+
+_RENAME_EXCHANGE = 2
+_AT_FDCWD = -100
+
+
+def _exchange(first: Path, second: Path) -> bool:
+    """Swap two folders atomically (Linux ``renameat2``); False where unsupported."""
+    if not sys.platform.startswith("linux"):
+        return False
+    try:
+        libc = ctypes.CDLL(ctypes.util.find_library("c") or None, use_errno=True)
+        renameat2 = libc.renameat2
+    except (OSError, AttributeError):
+        return False
+    renameat2.argtypes = [ctypes.c_int, ctypes.c_char_p, ctypes.c_int, ctypes.c_char_p,
+                          ctypes.c_uint]
+    renameat2.restype = ctypes.c_int
+    status = renameat2(_AT_FDCWD, os.fsencode(first), _AT_FDCWD, os.fsencode(second),
+                       _RENAME_EXCHANGE)
+    if status == 0:
+        return True
+    code = ctypes.get_errno()
+    if code in (errno.EINVAL, errno.ENOSYS, errno.ENOTSUP, errno.EOPNOTSUPP):
+        return False
+    raise OSError(code, os.strerror(code), str(second))
+
+
+def _swap_in(staging: Path, directory: Path) -> None:
+    """Put the complete `staging` folder at `directory`, replacing any old one whole."""
+    if not directory.exists():
+        staging.rename(directory)
+        _fsync_dir(directory.parent)
+        return
+    if _exchange(staging, directory):
+        _fsync_dir(directory.parent)
+        shutil.rmtree(staging, ignore_errors=True)      # now holds the old result
+        return
+    retired = _sibling(directory, _RETIRED, secrets.token_hex(4))
+    directory.rename(retired)
+    staging.rename(directory)
+    _fsync_dir(directory.parent)
+    shutil.rmtree(retired, ignore_errors=True)
+
+
+def _is_replaceable(directory: Path) -> str | None:
+    """Why `directory` must not be replaced, or None when it may be."""
+    if not directory.exists():
+        return None
+    if not directory.is_dir():
+        return "exists and is not a folder"
+    entries = list(directory.iterdir())
+    if not entries:
+        return None
+    if not (directory / MANIFEST_FILE).is_file():
+        return ("is a folder that holds other files and no manifest.json; it is not a fluxpart "
+                "result folder, and writing would replace it whole")
+    return None
+
+
+# --------------------------------------------------------------------------- writing
+
+def _unit_table(name: str) -> str:
+    return name if name in ("timeseries", "daily", "monthly", "annual", "audit") else "parameters"
+
+
+def run_log_record(directory: Path, provenance: dict) -> dict:
+    """Who, when, where and how: the content of the run log (never hashed)."""
+    try:
+        user = getpass.getuser()
+    except (KeyError, OSError):
+        user = "unknown"
+    inputs = {}
+    for key in ("input", "site_config"):
+        entry = provenance.get(key)
+        if isinstance(entry, dict) and "path" in entry:
+            inputs[key] = str(entry["path"])
+    return {
+        "written_utc": datetime.now(timezone.utc).isoformat(timespec="seconds"),
+        "user": user,
+        "host": socket.gethostname(),
+        "working_directory": os.getcwd(),
+        "command_line": [sys.executable, *sys.argv],
+        "process_id": os.getpid(),
+        "result_folder": str(directory),
+        "absolute_paths": inputs,
+        "note": "This file is listed in manifest.json but not hashed: it may differ between "
+                "runs that give identical tables.",
+    }
+
+
+def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, provenance: dict,
+                 warnings=(), lock_timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None) -> Path:
+    """Write result tables and their manifest to `directory`, replacing it as a whole.
+
+    Parameters
+    ----------
+    directory : path-like
+        The result folder. If it exists it must be a result folder (or empty):
+        it is replaced whole, so files that are not part of the new result do not
+        survive.
+    tables : dict of str to pandas.DataFrame
+        Table name -> table, each written as ``<name>.parquet`` with the units
+        of :func:`fluxpart.schema.units_for_table`.
+    site, config : dict
+        The site and the resolved settings.
+    seed : int
+        The random seed used.
+    provenance : dict
+        Input and site config records (absolute or relative paths), reader
+        record, screening thresholds.
+    warnings : sequence of str
+        Warnings of the run.
+    lock_timeout : float, optional
+        Seconds to wait for another writer of the same folder (0: refuse at once).
+    notify : callable, optional
+        Where the "waiting for another writer" line goes (default stderr).
+
+    Returns
+    -------
+    pathlib.Path
+        The folder written (absolute).
+
+    Raises
+    ------
+    OutputError
+        If `directory` is a file, a folder that is not a result folder, not
+        writable, or locked by another writer for longer than `lock_timeout`.
+        Nothing is changed in that case.
+    """
+    from .schema import units_for_table
+
+    directory = _absolute(directory)
+    reason = _is_replaceable(directory)
+    if reason:
+        raise OutputError(f"output folder {str(directory)!r} {reason}; choose another --out")
+    try:
+        directory.parent.mkdir(parents=True, exist_ok=True)
+    except OSError as error:
+        raise OutputError(f"cannot create the output folder's parent {str(directory.parent)!r}: "
+                          f"{error.strerror or error}") from None
+    with folder_lock(directory, lock_timeout, notify):
+        clean_leftovers(directory)
+        reason = _is_replaceable(directory)
+        if reason:
+            raise OutputError(f"output folder {str(directory)!r} {reason}; choose another --out")
+        try:
+            staging = Path(tempfile.mkdtemp(prefix=f".{directory.name}.{_STAGING}",
+                                            dir=directory.parent))
+            os.chmod(staging, _DIR_MODE)
+        except OSError as error:
+            raise OutputError(f"cannot write beside the output folder {str(directory)!r}: "
+                              f"{error.strerror or error}") from None
+        try:
+            entries = {}
+            for name, table in tables.items():
+                frame = table if table.index.name is not None else table.rename_axis("row")
+                columns = [frame.index.name or "index", *frame.columns]
+                file = f"{name}.parquet"
+                sha = write_table(frame, staging / file,
+                                  units_for_table(_unit_table(name), columns), name)
+                entries[name] = {"file": file, "sha256": sha, "rows": len(frame),
+                                 "columns": [str(c) for c in columns]}
+            manifest = build_manifest(
+                entries, site=site, config=config, seed=seed, provenance=provenance,
+                warnings=warnings, versions=library_versions(), code=code_fingerprint(),
+                platform_facts=platform_record(), directory=directory)
+            import json
+
+            log = run_log_record(directory, provenance)
+            atomic_write_bytes(staging / RUN_LOG,
+                               (json.dumps(log, indent=2, ensure_ascii=False) + "\n").encode())
+            atomic_write_bytes(staging / MANIFEST_FILE, manifest_bytes(manifest))
+            _fsync_dir(staging)
+            _swap_in(staging, directory)
+        except OSError as error:
+            shutil.rmtree(staging, ignore_errors=True)
+            raise OutputError(f"writing the result folder {str(directory)!r} failed: "
+                              f"{error.strerror or error}; the earlier result, if any, is "
+                              "unchanged") from None
+        except BaseException:
+            shutil.rmtree(staging, ignore_errors=True)
+            raise
+    return directory
+
+
+# --------------------------------------------------------------------------- reading
+
+@dataclass(frozen=True)
+class FolderProblem:
+    """One way a result folder does not match its manifest.
+
+    Attributes
+    ----------
+    file : str
+        The file (or folder) at fault, relative to the result folder.
+    kind : str
+        ``"seal"`` (manifest edited), ``"format"``, ``"missing"``, ``"hash"``
+        (bytes changed), ``"extra"`` (not listed in the manifest) or ``"entry"``
+        (a malformed table entry).
+    detail : str
+        What was found.
+    """
+
+    file: str
+    kind: str
+    detail: str
+
+    def describe(self) -> str:
+        """One line naming the file and the problem."""
+        return f"{self.file}: {self.detail}"
+
+
+def check_folder(directory, manifest: dict) -> list[FolderProblem]:
+    """Compare a result folder with its manifest; return every problem found.
+
+    Checks the manifest's seal and format, that each listed table exists with
+    its recorded SHA-256, and that nothing else is in the folder than the
+    manifest, its tables, the run log and the ``report/`` folder.
+    """
+    directory = Path(directory)
+    problems = []
+    if "seal" not in manifest:
+        problems.append(FolderProblem(MANIFEST_FILE, "seal", "has no seal; it was not written "
+                                      "by this version of fluxpart or was edited"))
+    elif not seal_intact(manifest):
+        problems.append(FolderProblem(MANIFEST_FILE, "seal", "was edited after it was written "
+                                      "(its seal does not match its content)"))
+    if manifest.get("format") != MANIFEST_FORMAT:
+        problems.append(FolderProblem(MANIFEST_FILE, "format",
+                                      f"format {manifest.get('format')!r}; this fluxpart reads "
+                                      f"{MANIFEST_FORMAT!r} (rerun to rewrite the folder)"))
+    allowed_files, allowed_dirs = {MANIFEST_FILE}, set()
+    unhashed = manifest.get("unhashed") if isinstance(manifest.get("unhashed"), dict) else {}
+    if RUN_LOG in unhashed:
+        allowed_files.add(RUN_LOG)
+    if f"{REPORT_FOLDER}/" in unhashed:
+        allowed_dirs.add(REPORT_FOLDER)
+    tables = manifest.get("tables")
+    if not isinstance(tables, dict) or not tables:
+        problems.append(FolderProblem(MANIFEST_FILE, "entry", "lists no tables"))
+        tables = {}
+    for name, entry in sorted(tables.items()):
+        file = entry.get("file") if isinstance(entry, dict) else None
+        if not isinstance(file, str) or not file or Path(file).name != file \
+                or file in (MANIFEST_FILE, RUN_LOG):
+            problems.append(FolderProblem(MANIFEST_FILE, "entry",
+                                          f"table {name!r} has no valid file name ({file!r})"))
+            continue
+        allowed_files.add(file)
+        path = directory / file
+        if not path.is_file():
+            problems.append(FolderProblem(file, "missing", "listed in the manifest but missing "
+                                          "from the folder"))
+            continue
+        actual = file_sha256(path)
+        if actual != entry.get("sha256"):
+            problems.append(FolderProblem(file, "hash", f"SHA-256 {actual} is not the "
+                                          f"{entry.get('sha256')} recorded in the manifest: "
+                                          "the file changed after it was written"))
+    for path in sorted(directory.iterdir()):
+        if path.name in allowed_files and path.is_file() and not path.is_symlink():
+            continue
+        if path.name in allowed_dirs and path.is_dir() and not path.is_symlink():
+            continue
+        if path.name in allowed_files or path.name in allowed_dirs:
+            problems.append(FolderProblem(path.name, "extra", "has the name of a listed entry "
+                                          "but is not a plain file or folder"))
+            continue
+        problems.append(FolderProblem(path.name + ("/" if path.is_dir() else ""), "extra",
+                                      "is not listed in the manifest (the folder must hold "
+                                      "exactly the files its manifest lists)"))
+    return problems
+
+
+def _recover_missing(directory: Path) -> None:
+    """If `directory` is gone but a complete retired copy is beside it, move it back."""
+    if directory.exists() or not _leftovers(directory, _RETIRED):
+        return
+    try:
+        with folder_lock(directory, timeout=30.0, notify=lambda text: None):
+            clean_leftovers(directory)
+    except OutputError:
+        retired = ", ".join(p.name for p in _leftovers(directory, _RETIRED))
+        raise InputFileError(f"{str(directory)!r} is missing and an interrupted write left the "
+                             f"earlier result in {retired} beside it, which could not be moved "
+                             "back (read-only place?); rename it to the folder's name") from None
+
+
+def read_folder(directory) -> tuple[dict, dict]:
+    """Read an intact result folder: its manifest and every table.
+
+    Parameters
+    ----------
+    directory : path-like
+        A folder written by :func:`write_folder`.
+
+    Returns
+    -------
+    manifest : dict
+        The parsed manifest.
+    tables : dict of str to pandas.DataFrame
+        Table name -> table.
+
+    Raises
+    ------
+    InputFileError
+        If the folder is not a result folder, or does not match its manifest
+        (the message names the first file at fault and how many more there are).
+    """
+    directory = _absolute(directory)
+    _recover_missing(directory)
+    for attempt in range(3):
+        before = _identity(directory)
+        manifest = read_manifest(directory)
+        problems = check_folder(directory, manifest)
+        if problems and _identity(directory) != before and attempt < 2:
+            continue                          # replaced while we read: read the new one
+        if problems:
+            more = (f" (and {len(problems) - 1} more problem(s); `fluxpart verify` lists them)"
+                    if len(problems) > 1 else "")
+            raise InputFileError(f"result folder {str(directory)!r} does not match its "
+                                 f"manifest: {problems[0].describe()}{more}")
+        tables = {name: read_table(directory / entry["file"])
+                  for name, entry in manifest["tables"].items()}
+        if _identity(directory) == before or attempt == 2:
+            return manifest, tables
+    raise InputFileError(f"result folder {str(directory)!r} kept changing while being read")
+
+
+def _identity(directory: Path):
+    try:
+        status = os.stat(directory)
+    except OSError:
+        return None
+    return (status.st_dev, status.st_ino)
