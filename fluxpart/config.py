@@ -102,6 +102,7 @@ class Config:
     e0_fallback : float or None
         E0 to use, flagged, when no window is acceptable [K]. ``None`` (default)
         makes such a year fail with an :class:`~fluxpart.errors.InsufficientDataError`.
+        The daytime method uses it likewise when none of its night windows gives an E0.
     rref_window_days : float
         Window for the reference respiration with E0 fixed [days]; 4 days,
         Reichstein et al. (2005).
@@ -118,7 +119,36 @@ class Config:
         be fitted; otherwise k is fixed at 0; 5, our choice.
     daytime_beta0_max : float
         Upper bound of the light-saturated assimilation beta0 [µmol m-2 s-1]; 250,
-        Lasslop et al. (2010) (m). Windows reaching it are kept and flagged.
+        Lasslop et al. (2010) (m). A window whose fit reaches it is refitted with Rref
+        fixed at the window's night Rref (see ``daytime_consistency_z``).
+    daytime_e0_window_days : tuple of float
+        Widths [days] of the night windows, centred on each daytime window, tried in
+        turn to estimate that window's E0 from night NEE; (4, 8, 16): the window
+        itself first (Lasslop et al. 2010 estimate E0 from night data around the
+        window (m)), widened up to about the 15 days of Reichstein et al. (2005).
+        Windows where none gives an acceptable E0 (the ``e0_min_points``,
+        ``e0_min_temperature_range``, ``e0_bounds`` and ``e0_max_relative_error``
+        rules of the nighttime method) take E0 interpolated in time between those
+        that do. Nothing is taken from the nighttime method's E0.
+    daytime_consistency_z : float
+        A daytime fit whose Rref differs from the window's night Rref (least squares
+        of the window's night NEE with its E0) by more than this many combined
+        standard errors, or that sits at a bound (Rref 0, alpha 0 or 0.22, beta0 at
+        ``daytime_beta0_max``), is refitted with Rref fixed at the night Rref; 1.96
+        (95 %, two-sided; common practice). Our rule: the light response at Rg = 0
+        is respiration, which night records measure directly. ``inf`` keeps only
+        the bound rules.
+    daytime_night_min_points : int
+        Fewest night records of a daytime window for its night Rref; 5, our choice.
+        Windows that need the refit but lack them are rejected and take their
+        parameters from the neighbouring windows.
+    daytime_weighting : str
+        ``"random_error"`` (default): weight the daytime fits by 1/σ², σ from the
+        random-error model of NEE (the ``random_error_*`` pairing settings)
+        evaluated at the first, unweighted fit's modelled NEE, as Lasslop et al.
+        (2010) weight by the flux uncertainty (m); the fit falls back to unweighted
+        (column ``weighted`` of the daytime parameter table) where too few pairs
+        give a model. ``"none"``: unweighted.
     random_error_draws : int
         Monte Carlo realisations of the random error of NEE summed per year; 500,
         our choice (the standard deviation of the sum is then known to about 3 %).
@@ -169,6 +199,10 @@ class Config:
     daytime_min_points: int = 10
     daytime_k_min_points: int = 5
     daytime_beta0_max: float = 250.0
+    daytime_e0_window_days: tuple[float, ...] = (4.0, 8.0, 16.0)
+    daytime_consistency_z: float = 1.96
+    daytime_night_min_points: int = 5
+    daytime_weighting: str = "random_error"
     random_error_draws: int = 500
     random_error_rg_tolerance: float = 35.0
     random_error_tair_tolerance: float = 3.0
@@ -219,6 +253,7 @@ class Config:
         """Return all settings as plain JSON-compatible values."""
         out = asdict(self)
         out["e0_bounds"] = list(self.e0_bounds)
+        out["daytime_e0_window_days"] = list(self.daytime_e0_window_days)
         out["ustar_scenarios"] = list(self.ustar_scenarios)
         return out
 
@@ -232,6 +267,7 @@ def suggest_key(key: str, valid) -> str:
 
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil"),
+            "daytime_weighting": ("random_error", "none"),
             "ustar_method": ("moving_point", "change_point", "fixed")}
 _POSITIVE = ("night_rg_threshold", "rg_tolerance", "tair_tolerance", "vpd_tolerance",
              "e0_window_days", "e0_window_step_days", "e0_min_temperature_range",
@@ -239,11 +275,12 @@ _POSITIVE = ("night_rg_threshold", "rg_tolerance", "tair_tolerance", "vpd_tolera
              "gapfill_max_window_days", "daytime_window_days", "daytime_window_step_days",
              "agreement_margin", "daytime_beta0_max", "ustar_plateau_share",
              "ustar_correlation_limit", "random_error_rg_tolerance",
-             "random_error_tair_tolerance", "random_error_vpd_tolerance")
+             "random_error_tair_tolerance", "random_error_vpd_tolerance",
+             "daytime_consistency_z")
 _NON_NEGATIVE = ("ustar_threshold", "ustar_min_threshold", "rg_margin", "rg_relative_margin")
 _COUNTS = ("e0_min_points", "e0_best_windows", "rref_min_points", "daytime_min_points",
            "daytime_k_min_points", "ustar_temperature_classes", "ustar_classes",
-           "random_error_draws")
+           "random_error_draws", "daytime_night_min_points")
 _PERCENTILES = (5, 16, 50, 84, 95)
 
 
@@ -283,6 +320,12 @@ def _check(config: Config) -> None:
             or not all(_is_number(v) for v in low_high) or not 0 < low_high[0] < low_high[1]):
         raise ConfigError(f"[processing] e0_bounds = {low_high!r}: expected [low, high] in K "
                           "with 0 < low < high")
+    widths = config.daytime_e0_window_days
+    if (not isinstance(widths, tuple) or not widths
+            or not all(_is_number(w) and 0 < w < float("inf") for w in widths)
+            or list(widths) != sorted(set(widths))):
+        raise ConfigError(f"[processing] daytime_e0_window_days = {widths!r}: expected a list "
+                          "of increasing positive widths in days, e.g. [4, 8, 16]")
     if config.e0_fallback is not None and (not _is_number(config.e0_fallback)
                                            or config.e0_fallback <= 0):
         raise ConfigError(f"[processing] e0_fallback = {config.e0_fallback!r}: expected a "

@@ -317,11 +317,33 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
         respiration_driver=temperature)
     day = daytime.partition_daytime(
         frame.index, nee_measured, filled_drivers["rg_filled"].to_numpy(),
-        filled_drivers["vpd_filled"].to_numpy(), temperature_filled, is_night, night.e0,
+        filled_drivers["vpd_filled"].to_numpy(), temperature_filled, is_night,
+        random_error=_daytime_error_model(frame.index, nee_measured, screened, config),
         window_days=config.daytime_window_days, window_step_days=config.daytime_window_step_days,
         min_points=config.daytime_min_points, k_min_points=config.daytime_k_min_points,
-        beta0_max=config.daytime_beta0_max)
+        beta0_max=config.daytime_beta0_max, e0_window_days=config.daytime_e0_window_days,
+        e0_min_points=config.e0_min_points,
+        e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
+        e0_max_relative_error=config.e0_max_relative_error, e0_fallback=config.e0_fallback,
+        night_min_points=config.daytime_night_min_points,
+        consistency_z=config.daytime_consistency_z)
     return too_calm, nee_measured, filled, night, day
+
+
+def _daytime_error_model(index, nee_measured, screened, config):
+    """σ(NEE) of the random-error model for weighting the daytime fit, or None (unweighted)."""
+    if config.daytime_weighting == "none":
+        return None
+    try:
+        pairs = uncertainty.paired_differences(
+            index, nee_measured, screened["rg"].to_numpy(dtype=float),
+            screened["tair"].to_numpy(dtype=float), screened["vpd"].to_numpy(dtype=float),
+            rg_tolerance=config.random_error_rg_tolerance,
+            tair_tolerance=config.random_error_tair_tolerance,
+            vpd_tolerance=config.random_error_vpd_tolerance)
+        return uncertainty.random_error_model(pairs).predict
+    except InsufficientDataError:
+        return None
 
 
 def stage_count(config: Config) -> int:

@@ -157,7 +157,17 @@ _PARAMETER_UNITS = {
     "k_se": ("hPa-1", "standard error of k"),
     "rmse": (FLUX, "root-mean-square residual of the fit"),
     "accepted": ("1", "fit accepted"),
-    "reason": ("", "why a fit was rejected, or a note on an accepted one"),
+    "reason": ("", "why a fit was rejected or replaced, or a note on an accepted one"),
+    "status": ("", "daytime window: accepted (own fit), replaced (refit with Rref fixed at the "
+               "night Rref) or rejected (parameters interpolated from neighbouring windows)"),
+    "e0_points": ("1", "night records of the E0 fit (0 where E0 was interpolated)"),
+    "e0_window_days": ("d", "width of the night window centred on the daytime window that "
+                       "gave E0 (empty where interpolated)"),
+    "e0_source": ("", "E0 from the window's own night data (window), a wider night window "
+                  "(widened), interpolated between windows, or supplied"),
+    "rref_night": (FLUX, "Rref of the window's night NEE with its E0, least squares (CO2)"),
+    "rref_night_se": (FLUX, "standard error of the night Rref (CO2)"),
+    "weighted": ("1", "fit weighted by the random error of NEE"),
     "k_fixed": ("1", "k fixed at 0 (not identifiable)"),
     "threshold": ("m s-1", "u* threshold"),
     "row": ("1", "row number"),
@@ -165,7 +175,7 @@ _PARAMETER_UNITS = {
     "months": ("", "months of the season, e.g. DJF"),
     "detector": ("", "u* threshold detector: moving_point, change_point or fixed"),
     "night_records": ("1", "usable night records"),
-    "night_points": ("1", "night records in the window used to start Rref"),
+    "night_points": ("1", "measured night records in the window (start and night Rref)"),
     "threshold_detected": ("m s-1", "u* threshold found before the floor was applied"),
     "threshold_p05": ("m s-1", "5th percentile of the bootstrap thresholds"),
     "threshold_p16": ("m s-1", "16th percentile of the bootstrap thresholds"),

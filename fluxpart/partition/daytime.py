@@ -5,53 +5,88 @@ Measured daytime NEE is fitted, window by window, to
     NEE = -alpha beta Rg / (alpha Rg + beta) + Rref LT(T; E0),
     beta = beta0 exp(-k (VPD - VPD0)) for VPD > VPD0, beta = beta0 otherwise,
 
-with E0 taken from the nighttime method (one value per record, supplied by the
-caller) and alpha, beta0, k and Rref fitted. All windows of a record are fitted
-at once by a batched, bounded Levenberg–Marquardt iteration with analytic
-Jacobians over padded arrays (no Python loop over windows). Parameters of the
-accepted windows are interpolated linearly in time between window centres, and
-GPP and Reco are evaluated on the supplied (gap-filled) drivers.
+with alpha, beta0, k and Rref fitted and E0 estimated by this module from the
+night records around each window (it takes nothing from the nighttime method).
+All windows of a record are fitted at once by a batched, bounded
+Levenberg–Marquardt iteration with analytic Jacobians over padded arrays (no
+Python loop over windows). Parameters of the windows in use are interpolated
+linearly in time between window centres, and GPP and Reco are evaluated on the
+supplied (gap-filled) drivers.
 
 Rules and their sources (``(m)`` = recalled from memory, check against the paper):
 
 - 4-day windows moved by 2 days: Lasslop et al. (2010) (m).
-- E0 fixed at the nighttime estimate: Lasslop et al. (2010) (m).
+- **E0 per window from night data.** Lasslop et al. (2010) fix E0 in the
+  daytime fit at a value estimated from night-time NEE around the window (m).
+  Rule here: the measured night NEE of a window centred on the daytime window,
+  first 4 days wide (the window itself), then widened to 8 and to 16 days when
+  the narrower one fails; never wider than the 15-day windows of the nighttime
+  method (Reichstein et al. 2005), rounded to the doubling sequence, because
+  wider windows confound the seasonal change of Rref with the short-term
+  temperature response (Reichstein et al. 2005). A fit (Rref and E0 by least
+  squares, the global optimum found on a 10 K grid and refined by golden-section
+  search on the profile) is accepted with at least `e0_min_points` records, a
+  temperature range of at least `e0_min_temperature_range` (5 K, Reichstein et
+  al. 2005), E0 strictly inside `e0_bounds` (30–450 K, Reichstein et al. 2005
+  (m)), positive Rref and a standard error of at most `e0_max_relative_error`
+  (0.5, our choice, as the nighttime method) of E0. Windows where no width
+  passes take E0 interpolated linearly in time between the centres of windows
+  that passed (constant beyond the first and last; our choice, the same
+  interpolation as the light-response parameters). No window passing anywhere
+  uses `e0_fallback` (flagged) if given, else raises
+  :class:`~fluxpart.errors.InsufficientDataError`.
 - VPD0 = 10 hPa: Lasslop et al. (2010), eq. 4 (m).
 - Starting values alpha = 0.01 µmol J-1, k = 0, beta0 = |q03 - q97| of the
   window's daytime NEE: Lasslop et al. (2010) (m). Rref starts from the window's
-  night data: the least-squares Rref of measured night NEE with E0 fixed (our
-  choice; Lasslop et al. used night-time respiration to inform the daytime
-  Rref (m)). By default the night data are only this starting value, not a
-  prior term in the cost, and the daytime fit alone sets Rref. With
-  ``night_in_fit=True`` (our option) the window's measured night NEE joins the
-  fit as ``Rref LT(T)``, a likelihood term that constrains Rref where the
-  daytime signal is weak.
-- alpha bounded to [0, 0.22] µmol J-1; a window whose alpha reaches 0.22 is
-  rejected: Lasslop et al. (2010) reject alpha > 0.22 (m). alpha = 0 (no
-  assimilation, e.g. dormant season) is accepted and gives zero GPP (our choice).
-- beta0 bounded to [0, 250] µmol m-2 s-1: Lasslop et al. (2010) name 250 as the
-  largest plausible beta0 (m). A window whose beta0 reaches 250 (crops, C4
-  canopies whose light response barely saturates) is accepted with beta0 at the
-  bound and flagged "beta0 at upper bound": within the observed light range the
-  curve is then nearly linear and alpha absorbs the difference (our choice, so
-  that such windows are fitted rather than lost).
-- k >= 0. k is fixed at 0 when fewer than `k_min_points` records of the window
-  have VPD above VPD0 (not identifiable; our choice of count), and when the fit
-  drives k to its bound 0: Lasslop et al. (2010) set k = 0 and refit when the
-  fit gives k < 0 (m); the bounded optimum with k at 0 is that refit.
-- Rref >= 0; a window whose Rref reaches 0 is rejected: Lasslop et al. (2010)
-  reject negative respiration (m).
-- A window with fewer than `min_points` usable daytime records, a fit that does
-  not converge, or a singular fit (a free parameter without finite standard
-  error) is rejected (our choices).
-- Rejected windows are skipped in the interpolation; beyond the first and last
-  accepted centres the parameters are held constant (linear interpolation
-  between centres and constant extension: our reading of the paper's use of
+  night data (the night Rref below).
+- **Night Rref.** For every window the least-squares Rref of its own measured
+  night NEE with the window's E0 (a closed form), with its standard error; at
+  least `night_min_points` records (5, our choice). It starts the fit, and it
+  replaces the fitted Rref where the daytime fit cannot be trusted (below).
+- **Weighting.** With `random_error` (σ of each record's NEE) the fit
+  minimises ``sum((model - NEE)^2 / σ^2)``: Lasslop et al. (2010) weight the
+  cost by the flux uncertainty (m). Without it all records weigh the same.
+- Bounds: alpha in [0, 0.22] µmol J-1, beta0 in [0, 250] µmol m-2 s-1,
+  k >= 0, Rref >= 0: Lasslop et al. (2010) (m). k is fixed at 0 when fewer
+  than `k_min_points` records of the window have VPD above VPD0 (our count), or
+  when the fit drives k to its bound 0: Lasslop et al. (2010) set k = 0 and refit
+  when the fit gives k < 0 (m); the bounded optimum with k at 0 is that refit.
+- **Judging a window** (status ``accepted``, ``replaced`` or ``rejected``, with
+  the reason):
+
+  * rejected: fewer than `min_points` usable daytime records; no convergence.
+  * replaced, when the daytime fit sits at a bound or contradicts the night:
+    Rref at 0, alpha at its upper bound, alpha at 0 (no light response
+    found), beta0 at its upper bound (the curve does not saturate within the
+    window, so alpha and Rref trade off along a ridge), a singular fit, or a
+    fitted Rref that differs from the window's night Rref by more than
+    `consistency_z` (1.96: 95 %, two-sided) combined standard errors. The
+    replacement is a constrained refit: Rref fixed at the night Rref and alpha,
+    beta0, k fitted on the daytime data. Physical argument: the light response
+    extrapolated to Rg = 0 is respiration, and night records are direct
+    measurements of it at Rg = 0; when the daytime data alone cannot separate
+    the two fluxes (weak or non-saturating light response in dormant and cold
+    months, or photosynthesis that rises with temperature through the day,
+    which the daytime fit otherwise reads as negative respiration), the measured
+    respiration is the defensible anchor. Lasslop et al. (2010) instead reuse
+    the previous window's parameters (m); that is our fall-back below.
+  * rejected after the refit: no night Rref (too few night records), or the
+    refit itself fails (alpha at its upper bound, no convergence, singular).
+  * accepted with a note: beta0 at its upper bound after the refit (crops, C4
+    canopies whose light response barely saturates: within the observed light
+    the curve is nearly linear and alpha absorbs the rest); alpha at 0 after
+    the refit (no detectable assimilation: GPP = 0).
+
+- Rejected windows are skipped in the interpolation, so their parameters come
+  from the neighbouring windows in use (linear in time between centres,
+  constant beyond the first and last; our reading of the paper's use of
   neighbouring windows (m)).
 
-Standard errors are ``sqrt(diag((J^T J)^-1 s^2))`` over the parameters left
-free at the solution, with ``s^2`` the residual variance; parameters fixed or at
-a bound get NaN.
+Standard errors are ``sqrt(diag((J^T W J)^-1 s^2))`` over the parameters left
+free at the solution, with ``s^2`` the (weighted) residual variance; parameters
+fixed or at a bound get NaN, except a fixed night Rref, which keeps its own
+standard error. They are per-window sampling errors for a later bootstrap over
+windows, not a full parameter uncertainty.
 """
 
 from __future__ import annotations
@@ -62,7 +97,7 @@ import numpy as np
 import pandas as pd
 
 from .._validate import as_float
-from ..constants import LLOYD_TAYLOR_T0_KELVIN, LLOYD_TAYLOR_TREF_KELVIN
+from ..constants import KELVIN_OFFSET, LLOYD_TAYLOR_T0_KELVIN, LLOYD_TAYLOR_TREF_KELVIN
 from ..errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -76,21 +111,24 @@ from ..responses import (
     LASSLOP_VPD0_HPA,
     light_response,
     light_response_derivatives,
-    lloyd_taylor,
 )
 
-__all__ = ["DaytimeResult", "PARAMETER_COLUMNS", "partition_daytime"]
+__all__ = ["DaytimeResult", "PARAMETER_COLUMNS", "STATUSES", "partition_daytime"]
 
 #: Columns of :attr:`DaytimeResult.parameters`, one row per window.
 PARAMETER_COLUMNS = (
     "window_start", "window_end", "window_centre", "points", "night_points",
     "alpha", "beta0", "k", "rref", "e0",
-    "alpha_se", "beta0_se", "k_se", "rref_se",
-    "rmse", "accepted", "reason", "k_fixed",
+    "alpha_se", "beta0_se", "k_se", "rref_se", "e0_se",
+    "e0_points", "e0_window_days", "e0_source", "rref_night", "rref_night_se",
+    "rmse", "weighted", "accepted", "status", "reason", "k_fixed",
 )
 
+#: Values of the ``status`` column.
+STATUSES = ("accepted", "replaced", "rejected")
+
 _ALPHA, _BETA0, _K, _RREF = range(4)
-_MODEL_INPUTS = ("nee", "rg", "vpd", "factor")
+_MODEL_INPUTS = ("nee", "rg", "vpd", "factor", "weight")
 _ALPHA_START = 0.01          # µmol J-1, Lasslop et al. (2010) (m)
 _RREF_FLOOR_START = 0.1      # µmol m-2 s-1, keeps the start off the bound (our choice)
 _LAMBDA_START = 1e-3         # Marquardt damping, usual starting value (common practice)
@@ -99,6 +137,9 @@ _FTOL = 1e-10                # relative cost change at convergence
 _XTOL = 1e-8                 # relative step at convergence
 _SE_TOL = 1e-2               # remaining step in standard errors at convergence
 _MAX_CONDITION = 1e12        # largest condition number of the scaled J^T J (our choice)
+_E0_GRID_STEP = 10.0         # K, coarse grid of the E0 profile (our choice)
+_E0_BOUND_MARGIN = 0.5       # K, an E0 this close to a bound counts as at the bound
+_GOLDEN_ITERATIONS = 30      # shrinks the bracket by 0.618^30 ~ 5e-7 (our choice)
 
 
 @dataclass(frozen=True)
@@ -112,29 +153,43 @@ class DaytimeResult:
         zero where Rg <= 0, NaN where a driver is NaN.
     reco : numpy.ndarray
         Ecosystem respiration per record, Lloyd–Taylor with the interpolated
-        Rref and the supplied E0 [µmol m-2 s-1].
+        Rref and E0 [µmol m-2 s-1].
+    e0 : numpy.ndarray
+        E0 per record, interpolated between window centres [K].
     parameters : pandas.DataFrame
         One row per window, columns :data:`PARAMETER_COLUMNS`:
         ``window_start``, ``window_end`` (exclusive), ``window_centre``
         (timestamps); ``points`` (usable daytime records); ``night_points``
-        (measured night records, used for the Rref start); ``alpha`` [µmol J-1],
-        ``beta0`` [µmol m-2 s-1], ``k`` [hPa-1], ``rref`` [µmol m-2 s-1],
-        ``e0`` (mean of the window's E0) [K]; their standard errors
-        ``alpha_se``, ``beta0_se``, ``k_se``, ``rref_se`` (NaN where fixed or at
-        a bound); ``rmse`` of the fit [µmol m-2 s-1]; ``accepted`` (bool);
-        ``reason`` ("ok", a note on an accepted fit, or why it was rejected);
-        ``k_fixed`` (bool). Parameters of windows too small to fit are NaN.
+        (measured night records of the window); ``alpha`` [µmol J-1],
+        ``beta0`` [µmol m-2 s-1], ``k`` [hPa-1], ``rref`` [µmol m-2 s-1] as
+        used (after a replacement, the refit's values), ``e0`` [K]; their
+        standard errors ``alpha_se``, ``beta0_se``, ``k_se``, ``rref_se``,
+        ``e0_se`` (NaN where fixed or at a bound); ``e0_points`` and
+        ``e0_window_days`` (night records and width [days] of the E0 fit; 0 and
+        NaN where interpolated), ``e0_source`` (``"window"``, ``"widened"``,
+        ``"interpolated"``, ``"fallback"`` or ``"supplied"``); ``rref_night``,
+        ``rref_night_se`` (the window's night Rref); ``rmse`` of the fit
+        [µmol m-2 s-1]; ``weighted`` (bool: fitted with the random error as
+        weights); ``accepted`` (bool: the window's parameters are used);
+        ``status`` (one of :data:`STATUSES`); ``reason`` (why); ``k_fixed``
+        (bool). Parameters of windows too small to fit are NaN.
     """
 
     gpp: np.ndarray
     reco: np.ndarray
+    e0: np.ndarray
     parameters: pd.DataFrame
 
 
-def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, e0, *,
-                      window_days=4.0, window_step_days=2.0, min_points=10,
-                      k_min_points=5, vpd0=LASSLOP_VPD0_HPA, alpha_bounds=(0.0, 0.22),
-                      beta0_max=250.0, night_in_fit=False, max_iterations=200,
+def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
+                      random_error=None, e0=None, window_days=4.0, window_step_days=2.0,
+                      min_points=10, k_min_points=5, vpd0=LASSLOP_VPD0_HPA,
+                      alpha_bounds=(0.0, 0.22), beta0_max=250.0,
+                      e0_window_days=(4.0, 8.0, 16.0), e0_min_points=6,
+                      e0_min_temperature_range=5.0, e0_bounds=(30.0, 450.0),
+                      e0_max_relative_error=0.5, e0_fallback=None, night_min_points=5,
+                      consistency_z=1.96,
+                      night_in_fit=False, max_iterations=200,
                       tref_kelvin=LLOYD_TAYLOR_TREF_KELVIN,
                       t0_kelvin=LLOYD_TAYLOR_T0_KELVIN) -> DaytimeResult:
     """Partition NEE into GPP and Reco by the daytime light-response method.
@@ -145,8 +200,8 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, e0, *
         Record start times, increasing, regular 30- or 60-minute spacing; any
         number of years.
     nee_measured : array_like
-        Measured NEE, NaN where not measured or rejected [µmol m-2 s-1,
-        positive = release].
+        Measured NEE, NaN where not measured or rejected (including the u*
+        filter) [µmol m-2 s-1, positive = release].
     rg : array_like
         Global radiation, gap-filled [W m-2].
     vpd : array_like
@@ -155,10 +210,22 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, e0, *
         Respiration driving temperature (air or soil), gap-filled [°C].
     is_night : array_like of bool
         True for night records; only records with ``is_night`` False and
-        ``rg > 0`` enter the light-response fit.
-    e0 : array_like
-        Lloyd–Taylor temperature sensitivity per record, from the nighttime
-        method [K].
+        ``rg > 0`` enter the light-response fit, only night records the E0 and
+        night Rref fits.
+    random_error : callable, optional
+        The random-error model of NEE: a function mapping NEE [µmol m-2 s-1] to
+        the standard deviation of its random error [µmol m-2 s-1] (e.g.
+        :meth:`fluxpart.uncertainty.RandomErrorModel.predict`). When given, the
+        method runs twice: unweighted, then with weights ``1/σ^2``, σ evaluated
+        at the first pass's modelled NEE of each record (Lasslop et al. 2010
+        weight the cost by the flux uncertainty (m)). σ is not taken at the
+        measured values, because a weight that depends on a record's own noise
+        biases the fit. Non-finite or non-positive σ take the median of the
+        others. Default None: unweighted.
+    e0 : array_like, optional
+        E0 per record [K] to use instead of the estimate (for comparisons with
+        a fixed E0). Default None: estimated from night data, see the module
+        docstring.
     window_days : float, optional
         Window length [days]; default 4, Lasslop et al. (2010) (m).
     window_step_days : float, optional
@@ -174,16 +241,37 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, e0, *
         VPD threshold of the limitation [hPa]; default 10, Lasslop et al. (2010) (m).
     alpha_bounds : tuple of float, optional
         Bounds of alpha [µmol J-1]; default (0, 0.22), Lasslop et al. (2010) (m).
-        A window reaching the upper bound is rejected.
     beta0_max : float, optional
         Upper bound of beta0 [µmol m-2 s-1]; default 250, Lasslop et al.
-        (2010) (m). A window reaching it is accepted and flagged.
+        (2010) (m).
+    e0_window_days : tuple of float, optional
+        Widths [days] of the night windows centred on each daytime window tried
+        in turn for E0; default (4, 8, 16), see the module docstring.
+    e0_min_points : int, optional
+        Fewest night records for an E0 fit; default 6 (the nighttime method's,
+        Reichstein et al. 2005 (m)).
+    e0_min_temperature_range : float, optional
+        Smallest night temperature range for an E0 fit [K]; default 5,
+        Reichstein et al. (2005).
+    e0_bounds : tuple of float, optional
+        Accepted E0 range [K], exclusive; default (30, 450), Reichstein et al.
+        (2005) (m).
+    e0_max_relative_error : float, optional
+        Largest standard error of E0 relative to E0; default 0.5 (our choice).
+    e0_fallback : float, optional
+        E0 [K] for every window, flagged ``"fallback"`` in ``e0_source``, when no
+        window has night data that give an acceptable E0. Default None: such a
+        record raises :class:`~fluxpart.errors.InsufficientDataError`.
+    night_min_points : int, optional
+        Fewest night records of a window for its night Rref; default 5 (our choice).
+    consistency_z : float, optional
+        Largest difference between the fitted and the night Rref, in combined
+        standard errors, before the fit is replaced; default 1.96 (95 %,
+        two-sided; common practice). ``numpy.inf`` disables the check.
     night_in_fit : bool, optional
         Also fit the window's measured night NEE (model ``Rref LT(T)``, no
-        light), so that night data constrain Rref as a likelihood term beside
-        the daytime data. Default False: the published method fits daytime
-        data only (Lasslop et al. 2010 (m)); True is our option for records
-        whose daytime signal is weak (dormant seasons, hourly data).
+        light) in the daytime fit. Default False: the published method fits
+        daytime data only (Lasslop et al. 2010 (m)).
     max_iterations : int, optional
         Levenberg–Marquardt iterations before a window counts as not converged;
         default 200 (our choice).
@@ -194,7 +282,7 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, e0, *
     Returns
     -------
     DaytimeResult
-        Per-record ``gpp`` and ``reco`` and the per-window ``parameters``.
+        Per-record ``gpp``, ``reco`` and ``e0`` and the per-window ``parameters``.
 
     Raises
     ------
@@ -203,17 +291,17 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, e0, *
     FluxpartError
         If an array is not one-dimensional with one value per record.
     ImplausibleValueError
-        If `is_night` is not boolean or `e0` is not finite and positive.
+        If `is_night` is not boolean or a supplied `e0` is not finite and positive.
     ConfigError
         If a setting is out of range.
     InsufficientDataError
-        If no window has an acceptable fit.
+        If no window has an acceptable E0 or light-response fit.
 
     Notes
     -----
     Model: Lasslop et al. (2010), eqs. 3–4 (m), with Reco by Lloyd & Taylor
-    (1994), eq. 11. The rules for bounds, starting values, fixing k and
-    rejecting windows are listed, each with its source, in the module docstring.
+    (1994), eq. 11. The rules for E0, bounds, starting values, fixing k and
+    judging windows are listed, each with its source, in the module docstring.
     Rref is defined at `tref_kelvin` (10 °C by default), so it is directly
     comparable with the nighttime method's Rref.
 
@@ -225,6 +313,10 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, e0, *
     approach: critical issues and global evaluation. Global Change Biology
     16:187–208. doi:10.1111/j.1365-2486.2009.02041.x
 
+    Reichstein, M. et al. (2005). On the separation of net ecosystem exchange
+    into assimilation and ecosystem respiration: review and improved algorithm.
+    Global Change Biology 11:1424–1439. doi:10.1111/j.1365-2486.2005.001002.x
+
     Lloyd, J. & Taylor, J. A. (1994). On the temperature dependence of soil
     respiration. Functional Ecology 8:315–323. doi:10.2307/2389824
 
@@ -234,6 +326,8 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, e0, *
     """
     _check_settings(window_days, window_step_days, min_points, k_min_points, vpd0,
                     alpha_bounds, beta0_max, max_iterations)
+    _check_e0_settings(e0_window_days, e0_min_points, e0_min_temperature_range, e0_bounds,
+                       e0_max_relative_error, e0_fallback, night_min_points, consistency_z)
     if not isinstance(night_in_fit, (bool, np.bool_)):
         raise ConfigError(f"daytime night_in_fit = {night_in_fit!r}: expected true or false")
     days = _days_since_start(index)
@@ -243,29 +337,67 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, e0, *
     vpd = as_float(vpd, "vpd", n)
     temperature = as_float(temperature, "temperature", n)
     night = _as_bool_array(is_night, "is_night", n)
-    e0 = as_float(e0, "e0", n)
-    bad_e0 = ~(np.isfinite(e0) & (e0 > 0))
-    if bad_e0.any():
-        row = int(np.flatnonzero(bad_e0)[0])
-        raise ImplausibleValueError(
-            f"e0: expected a finite, positive temperature sensitivity [K] for every record; "
-            f"found {e0[row]!r} at row {row} ({index[row]}). Map the nighttime method's E0 "
-            "to every record before daytime partitioning.")
+    if random_error is not None and not callable(random_error):
+        raise ConfigError("daytime random_error: expected a function of NEE returning its "
+                          "standard deviation [µmol m-2 s-1], or None")
+    supplied_e0 = None if e0 is None else _supplied_e0(e0, n, index)
+    arrhenius = _arrhenius(temperature, tref_kelvin, t0_kelvin)
+    measured = np.isfinite(nee) & np.isfinite(arrhenius)
+    data = {"days": days, "nee": nee, "rg": rg, "vpd": vpd, "temperature": temperature,
+            "arrhenius": arrhenius, "supplied_e0": supplied_e0,
+            "usable_day": measured & ~night & np.isfinite(vpd) & np.isfinite(rg) & (rg > 0),
+            "usable_night": measured & night}
+    settings = {"window_days": window_days, "window_step_days": window_step_days,
+                "min_points": min_points, "k_min_points": k_min_points, "vpd0": vpd0,
+                "alpha_bounds": alpha_bounds, "beta0_max": beta0_max,
+                "e0_window_days": e0_window_days, "e0_min_points": e0_min_points,
+                "e0_min_temperature_range": e0_min_temperature_range, "e0_bounds": e0_bounds,
+                "e0_max_relative_error": e0_max_relative_error, "e0_fallback": e0_fallback,
+                "night_min_points": night_min_points, "consistency_z": consistency_z,
+                "night_in_fit": night_in_fit, "max_iterations": max_iterations}
+    fit = _partition(data, None, settings)
+    if random_error is not None:
+        # Weights from the error model at the first fit's modelled NEE, not at the
+        # measured values: a weight that depends on a record's own noise biases the
+        # fit (records whose noise points towards zero flux would weigh more).
+        sigma = np.asarray(random_error(fit["reco"] - fit["gpp"]), dtype=float)
+        if sigma.shape != (n,):
+            raise LengthMismatchError(f"daytime random_error: the function returned shape "
+                                      f"{sigma.shape}, expected ({n},)")
+        valid = np.isfinite(sigma) & (sigma > 0)
+        if valid.any():
+            sigma = np.where(valid, sigma, np.median(sigma[valid]))
+            fit = _partition(data, 1.0 / sigma, settings)
+    parameters = _parameter_table(index, fit)
+    return DaytimeResult(gpp=fit["gpp"], reco=fit["reco"], e0=fit["e0"], parameters=parameters)
 
-    respiration_factor = lloyd_taylor(temperature, 1.0, e0, tref_kelvin=tref_kelvin,
-                                      t0_kelvin=t0_kelvin)
-    measured = np.isfinite(nee) & np.isfinite(respiration_factor)
-    usable_day = measured & ~night & np.isfinite(vpd) & np.isfinite(rg) & (rg > 0)
-    usable_night = measured & night
 
-    starts, ends = _window_bounds(days, window_days, window_step_days)
-    windows = _gather_windows(days, starts, ends, usable_day, usable_night, nee, rg, vpd,
-                              respiration_factor, e0, vpd0, night_in_fit)
+def _partition(data, weight, settings) -> dict:
+    """One pass of the method with fixed weights (None: unweighted); see the module docstring."""
+    days, nee, arrhenius = data["days"], data["nee"], data["arrhenius"]
+    usable_day, usable_night = data["usable_day"], data["usable_night"]
+    supplied_e0 = data["supplied_e0"]
+    vpd0, max_iterations = settings["vpd0"], settings["max_iterations"]
+    starts, ends = _window_bounds(days, settings["window_days"], settings["window_step_days"])
+    centres = (starts + ends) / 2.0
+    if supplied_e0 is None:
+        e0_fit = _window_e0(days, centres, usable_night, nee, arrhenius, data["temperature"],
+                            weight, settings["e0_window_days"], settings["e0_min_points"],
+                            settings["e0_min_temperature_range"], settings["e0_bounds"],
+                            settings["e0_max_relative_error"], settings["e0_fallback"])
+    else:
+        e0_fit = None
+    windows = _gather_windows(days, starts, ends, usable_day, usable_night, nee, data["rg"],
+                              data["vpd"], arrhenius, weight, vpd0, settings["night_in_fit"],
+                              e0_fit, supplied_e0)
+    rref_night, rref_night_se = _night_rref(windows, settings["night_min_points"])
+
+    alpha_bounds = settings["alpha_bounds"]
     lower = np.array([alpha_bounds[0], 0.0, 0.0, 0.0])
-    upper = np.array([alpha_bounds[1], beta0_max, np.inf, np.inf])
-    theta0 = _starting_values(windows, lower, upper)
-    k_free = windows["high_vpd_points"] >= k_min_points
-    fitted = windows["points"] >= min_points
+    upper = np.array([alpha_bounds[1], settings["beta0_max"], np.inf, np.inf])
+    theta0 = _starting_values(windows, rref_night, lower, upper)
+    k_free = windows["high_vpd_points"] >= settings["k_min_points"]
+    fitted = windows["points"] >= settings["min_points"]
     fixed = np.zeros(theta0.shape, dtype=bool)
     fixed[:, _K] = ~k_free
     fixed[~fitted] = True
@@ -273,28 +405,43 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, e0, *
     mask = windows["mask"] & fitted[:, None]
     theta, converged = _levenberg_marquardt(theta0, fixed, lower, upper, windows, mask,
                                             vpd0, max_iterations)
-    standard_errors, rmse = _standard_errors(theta, fixed, lower, upper, windows, mask, vpd0)
+    errors, rmse = _standard_errors(theta, fixed, lower, upper, windows, mask, vpd0)
+    status, reason, refit = _judge(theta, errors, fixed, fitted, converged, lower, upper,
+                                   rref_night, rref_night_se, settings["consistency_z"])
+    if refit.any():
+        theta, errors, rmse, fixed, status, reason = _refit_with_night_rref(
+            refit, theta, errors, rmse, fixed, status, reason, rref_night, rref_night_se,
+            theta0, lower, upper, windows, usable_day_mask=windows["day"] & fitted[:, None],
+            vpd0=vpd0, max_iterations=max_iterations)
 
-    k_fixed = fixed[:, _K] | (theta[:, _K] == 0.0)
-    accepted, reason = _judge(theta, standard_errors, fixed, fitted, converged, lower, upper)
+    used = status != "rejected"
     theta[~fitted] = np.nan
-    if not accepted.any():
+    if not used.any():
         counts = pd.Series(reason).value_counts()
         summary = ", ".join(f"{count} {why}" for why, count in counts.items())
         raise InsufficientDataError(
-            f"daytime partitioning: none of the {len(reason)} windows of {window_days} days "
-            f"has an acceptable light-response fit ({summary}); the record needs measured "
-            f"daytime NEE (at least {min_points} records in some window).")
+            f"daytime partitioning: none of the {len(reason)} windows of "
+            f"{settings['window_days']} days has an acceptable light-response fit ({summary}); "
+            f"the record needs measured daytime NEE (at least {settings['min_points']} "
+            "records in some window) and night NEE.")
 
-    centres = (starts + ends) / 2.0
-    per_record = _interpolate_parameters(days, centres, theta, accepted)
-    gpp = light_response(rg, vpd, per_record[:, _ALPHA], per_record[:, _BETA0],
-                         per_record[:, _K], vpd0=vpd0)
-    reco = lloyd_taylor(temperature, per_record[:, _RREF], e0, tref_kelvin=tref_kelvin,
-                        t0_kelvin=t0_kelvin)
-    parameters = _parameter_table(index, starts, ends, windows, theta, standard_errors, rmse,
-                                  accepted, reason, k_fixed)
-    return DaytimeResult(gpp=gpp, reco=reco, parameters=parameters)
+    per_record = _interpolate_parameters(days, centres, theta, used)
+    e0_record = (supplied_e0 if supplied_e0 is not None
+                 else np.interp(days, centres, e0_fit["e0"]))
+    gpp = light_response(data["rg"], data["vpd"], per_record[:, _ALPHA],
+                         per_record[:, _BETA0], per_record[:, _K], vpd0=vpd0)
+    with np.errstate(over="ignore", invalid="ignore"):
+        reco = per_record[:, _RREF] * np.exp(e0_record * arrhenius)
+    if e0_fit is None:
+        count = len(starts)
+        e0_fit = {"e0_se": np.full(count, np.nan), "points": np.zeros(count, dtype=np.int64),
+                  "width": np.full(count, np.nan),
+                  "source": np.full(count, "supplied", dtype=object)}
+    return {"gpp": gpp, "reco": reco, "e0": e0_record, "starts": starts, "ends": ends,
+            "windows": windows, "theta": theta, "errors": errors, "rmse": rmse,
+            "status": status, "reason": reason, "k_fixed": fixed[:, _K] | (theta[:, _K] == 0.0),
+            "e0_fit": e0_fit, "rref_night": rref_night, "rref_night_se": rref_night_se,
+            "weighted": weight is not None}
 
 
 def _check_settings(window_days, window_step_days, min_points, k_min_points, vpd0,
@@ -312,15 +459,64 @@ def _check_settings(window_days, window_step_days, min_points, k_min_points, vpd
     for name, value, smallest in (("min_points", min_points, 5),
                                   ("k_min_points", k_min_points, 1),
                                   ("max_iterations", max_iterations, 1)):
-        if not isinstance(value, (int, np.integer)) or isinstance(value, bool) \
-                or value < smallest:
-            raise ConfigError(f"daytime {name} = {value!r}: expected a whole number "
-                              f">= {smallest}")
+        _check_count(name, value, smallest)
     if (not isinstance(alpha_bounds, (tuple, list)) or len(alpha_bounds) != 2
             or not all(_is_number(v) for v in alpha_bounds)
             or not 0 <= alpha_bounds[0] < alpha_bounds[1]):
         raise ConfigError(f"daytime alpha_bounds = {alpha_bounds!r}: expected [low, high] "
                           "in µmol J-1 with 0 <= low < high")
+
+
+def _check_count(name, value, smallest):
+    if not isinstance(value, (int, np.integer)) or isinstance(value, bool) or value < smallest:
+        raise ConfigError(f"daytime {name} = {value!r}: expected a whole number >= {smallest}")
+
+
+def _check_e0_settings(widths, min_points, min_range, bounds, max_relative_error, fallback,
+                       night_min_points, consistency_z):
+    if (not isinstance(widths, (tuple, list)) or len(widths) == 0
+            or not all(_is_number(w) and w > 0 for w in widths)
+            or any(b <= a for a, b in zip(widths, widths[1:], strict=False))):
+        raise ConfigError(f"daytime e0_window_days = {widths!r}: expected a list of "
+                          "increasing positive widths in days, e.g. [4, 8, 16]")
+    _check_count("e0_min_points", min_points, 3)
+    _check_count("night_min_points", night_min_points, 1)
+    if not _is_number(min_range) or min_range < 0:
+        raise ConfigError(f"daytime e0_min_temperature_range = {min_range!r}: expected a "
+                          "number of K >= 0")
+    if (not isinstance(bounds, (tuple, list)) or len(bounds) != 2
+            or not all(_is_number(v) for v in bounds) or not 0 < bounds[0] < bounds[1]):
+        raise ConfigError(f"daytime e0_bounds = {bounds!r}: expected [low, high] in K with "
+                          "0 < low < high")
+    if fallback is not None and (not _is_number(fallback) or fallback <= 0):
+        raise ConfigError(f"daytime e0_fallback = {fallback!r}: expected a positive number "
+                          "of kelvin, or None")
+    if not _is_number(max_relative_error) or max_relative_error <= 0:
+        raise ConfigError(f"daytime e0_max_relative_error = {max_relative_error!r}: expected "
+                          "a positive number")
+    if (isinstance(consistency_z, bool) or not isinstance(consistency_z, (int, float, np.number))
+            or np.isnan(consistency_z) or consistency_z <= 0):
+        raise ConfigError(f"daytime consistency_z = {consistency_z!r}: expected a positive "
+                          "number of standard errors (inf disables the check)")
+
+
+def _supplied_e0(e0, n, index):
+    e0 = as_float(e0, "e0", n)
+    bad = ~(np.isfinite(e0) & (e0 > 0))
+    if bad.any():
+        row = int(np.flatnonzero(bad)[0])
+        raise ImplausibleValueError(
+            f"e0: expected a finite, positive temperature sensitivity [K] for every record; "
+            f"found {e0[row]!r} at row {row} ({index[row]}); leave e0 out to estimate it.")
+    return e0
+
+
+def _arrhenius(temperature, tref_kelvin, t0_kelvin):
+    """Lloyd–Taylor exponent per unit E0, 1/(Tref - T0) - 1/(T - T0) [K-1]; NaN at or below T0."""
+    kelvin = temperature + KELVIN_OFFSET
+    with np.errstate(divide="ignore", invalid="ignore"):
+        term = 1.0 / (tref_kelvin - t0_kelvin) - 1.0 / (kelvin - t0_kelvin)
+    return np.where(kelvin > t0_kelvin, term, np.nan)
 
 
 def _is_number(value) -> bool:
@@ -372,49 +568,177 @@ def _window_bounds(days, window_days, window_step_days):
     return starts, starts + float(window_days)
 
 
-def _gather_windows(days, starts, ends, usable_day, usable_night, nee, rg, vpd,
-                    respiration_factor, e0, vpd0, night_in_fit) -> dict:
-    """Padded (windows x records) arrays of each window's usable records."""
+def _padded_positions(days, starts, ends):
+    """Positions (windows x width) of the records in [start, end) and where they are real."""
     first = np.searchsorted(days, starts, side="left")
     last = np.searchsorted(days, ends, side="left")
     width = max(1, int((last - first).max()))
     positions = first[:, None] + np.arange(width)[None, :]
     inside = positions < last[:, None]
-    positions = np.minimum(positions, len(days) - 1)
+    return np.minimum(positions, len(days) - 1), inside
+
+
+def _window_e0(days, centres, usable_night, nee, arrhenius, temperature, weight, widths,
+               min_points, min_range, bounds, max_relative_error, fallback) -> dict:
+    """E0 per window from night data, widening the night window until a fit passes."""
+    count = len(centres)
+    out = {"e0": np.full(count, np.nan), "e0_se": np.full(count, np.nan),
+           "points": np.zeros(count, dtype=np.int64), "width": np.full(count, np.nan),
+           "source": np.full(count, "interpolated", dtype=object)}
+    night_positions = np.flatnonzero(usable_night)
+    night_days = days[night_positions]
+    for number, width in enumerate(widths if len(night_positions) else ()):
+        todo = np.flatnonzero(np.isnan(out["e0"]))
+        if len(todo) == 0:
+            break
+        positions, inside = _padded_positions(night_days, centres[todo] - width / 2.0,
+                                              centres[todo] + width / 2.0)
+        records = night_positions[positions]
+        y = np.where(inside, nee[records], 0.0)
+        x = np.where(inside, arrhenius[records], 0.0)
+        w = np.where(inside, 1.0 if weight is None else weight[records], 0.0)
+        t = temperature[records]
+        points = inside.sum(axis=1)
+        with np.errstate(invalid="ignore"):
+            span = (np.where(inside, t, -np.inf).max(axis=1)
+                    - np.where(inside, t, np.inf).min(axis=1))
+        e0, e0_se, rref = _profile_e0(y, x, w, points, bounds)
+        with np.errstate(invalid="ignore"):
+            passed = ((points >= min_points) & (span >= min_range) & np.isfinite(e0)
+                      & (e0 > bounds[0] + _E0_BOUND_MARGIN) & (e0 < bounds[1] - _E0_BOUND_MARGIN)
+                      & (rref > 0) & np.isfinite(e0_se) & (e0_se <= max_relative_error * e0))
+        chosen = todo[passed]
+        out["e0"][chosen] = e0[passed]
+        out["e0_se"][chosen] = e0_se[passed]
+        out["points"][chosen] = points[passed]
+        out["width"][chosen] = width
+        out["source"][chosen] = "window" if number == 0 else "widened"
+    good = np.isfinite(out["e0"])
+    if not good.any() and fallback is not None:
+        out["e0"][:] = fallback
+        out["source"][:] = "fallback"
+        return out
+    if not good.any():
+        raise InsufficientDataError(
+            "daytime partitioning: no window has night data that give an acceptable E0 "
+            f"(at least {min_points} night records spanning {min_range} K within "
+            f"{max(widths)} days, E0 inside {list(bounds)} K with a standard error of at "
+            f"most {max_relative_error:.0%}); set [processing] e0_fallback to use a fixed "
+            "E0, flagged")
+    out["e0"][~good] = np.interp(centres[~good], centres[good], out["e0"][good])
+    return out
+
+
+def _profile_e0(y, x, w, points, bounds):
+    """Least-squares E0 and its standard error per row, Rref profiled out in closed form.
+
+    For fixed E0 the best Rref is ``sum(w² y f) / sum(w² f²)`` with
+    ``f = exp(E0 x)``; the remaining sum of squares is scanned on a grid and the
+    best grid cell refined by golden-section search (the profile is smooth).
+    """
+    w2 = w**2
+
+    def profile(e0):
+        f = np.exp(e0[:, None] * x)
+        sf = (w2 * y * f).sum(axis=1)
+        ff = (w2 * f * f).sum(axis=1)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return (w2 * y * y).sum(axis=1) - sf**2 / ff, sf / ff
+
+    grid = np.arange(bounds[0], bounds[1] + _E0_GRID_STEP / 2, _E0_GRID_STEP)
+    grid[-1] = bounds[1]
+    costs = np.stack([profile(np.full(len(y), value))[0] for value in grid], axis=1)
+    costs = np.where(np.isfinite(costs), costs, np.inf)
+    best = np.argmin(costs, axis=1)
+    low = grid[np.maximum(best - 1, 0)]
+    high = grid[np.minimum(best + 1, len(grid) - 1)]
+    ratio = (np.sqrt(5.0) - 1.0) / 2.0
+    a, b = low.copy(), high.copy()
+    c, d = b - ratio * (b - a), a + ratio * (b - a)
+    fc, fd = profile(c)[0], profile(d)[0]
+    for _ in range(_GOLDEN_ITERATIONS):
+        left = fc < fd
+        b = np.where(left, d, b)
+        a = np.where(left, a, c)
+        new_c, new_d = b - ratio * (b - a), a + ratio * (b - a)
+        c, d = np.where(left, new_c, d), np.where(left, c, new_d)
+        fc, fd = np.where(left, profile(c)[0], fd), np.where(left, fc, profile(d)[0])
+    e0 = (a + b) / 2.0
+    sse, rref = profile(e0)
+    f = np.exp(e0[:, None] * x)
+    j_rref, j_e0 = f, rref[:, None] * f * x
+    normal = np.stack([np.stack([(w2 * j_rref * j_rref).sum(1), (w2 * j_rref * j_e0).sum(1)], -1),
+                       np.stack([(w2 * j_rref * j_e0).sum(1), (w2 * j_e0 * j_e0).sum(1)], -1)],
+                      axis=1)
+    determinant = normal[:, 0, 0] * normal[:, 1, 1] - normal[:, 0, 1] ** 2
+    with np.errstate(divide="ignore", invalid="ignore"):
+        variance = np.where(points > 2, sse / (points - 2), np.nan)
+        e0_se = np.sqrt(variance * normal[:, 0, 0] / determinant)
+    e0_se = np.where(determinant > 0, e0_se, np.nan)
+    return np.where(points > 2, e0, np.nan), e0_se, rref
+
+
+def _gather_windows(days, starts, ends, usable_day, usable_night, nee, rg, vpd, arrhenius,
+                    weight, vpd0, night_in_fit, e0_fit, supplied_e0) -> dict:
+    """Padded (windows x records) arrays of each window's usable records."""
+    positions, inside = _padded_positions(days, starts, ends)
     day = inside & usable_day[positions]
     night = inside & usable_night[positions]
     fit = day | night if night_in_fit else day
+    if supplied_e0 is None:
+        e0 = e0_fit["e0"][:, None]
+        e0_window = e0_fit["e0"]
+    else:
+        e0 = supplied_e0[positions]
+        with np.errstate(invalid="ignore"):
+            e0_window = np.where(inside, e0, 0.0).sum(1) / np.maximum(inside.sum(1), 1)
+    with np.errstate(over="ignore", invalid="ignore"):
+        factor = np.exp(e0 * arrhenius[positions])
+    record_weight = np.ones(len(days)) if weight is None else weight
 
     def take(values, where):
         return np.where(where, values[positions], 0.0)
 
-    e0_sum = take(e0, inside).sum(axis=1)
-    e0_count = inside.sum(axis=1)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        mean_e0 = np.where(e0_count > 0, e0_sum / e0_count, np.nan)
     return {
         "mask": fit,
+        "day": day,
         "nee": take(nee, fit),
         "rg": take(rg, day),             # night records in the fit see no light
         "vpd": take(vpd, day),
-        "factor": take(respiration_factor, fit),
+        "factor": np.where(fit, factor, 0.0),
+        "weight": take(record_weight, fit),
         "night_nee": take(nee, night),
-        "night_factor": take(respiration_factor, night),
+        "night_factor": np.where(night, factor, 0.0),
+        "night_weight": take(record_weight, night),
         "points": day.sum(axis=1),
         "night_points": night.sum(axis=1),
         "high_vpd_points": (day & (take(vpd, day) > vpd0)).sum(axis=1),
-        "e0": mean_e0,
+        "e0": e0_window,
     }
 
 
-def _starting_values(windows, lower, upper) -> np.ndarray:
+def _night_rref(windows, min_points):
+    """Weighted least-squares Rref of each window's night NEE with E0 fixed, and its error."""
+    y, f, w2 = windows["night_nee"], windows["night_factor"], windows["night_weight"] ** 2
+    points = windows["night_points"]
+    sf = (w2 * y * f).sum(axis=1)
+    ff = (w2 * f * f).sum(axis=1)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        rref = sf / ff
+        residual = np.where(f > 0, y - rref[:, None] * f, 0.0)
+        variance = (w2 * residual**2).sum(axis=1) / (points - 1)
+        se = np.sqrt(variance / ff)
+    usable = (points >= min_points) & (ff > 0) & np.isfinite(rref) & (rref > 0) & np.isfinite(se)
+    return np.where(usable, rref, np.nan), np.where(usable, se, np.nan)
+
+
+def _starting_values(windows, rref_night, lower, upper) -> np.ndarray:
     """Starting alpha, beta0, k (Lasslop et al. 2010 (m)) and Rref from night data.
 
-    Rref: least squares of the window's night NEE on LT(T; E0); where a window
-    has no usable night data, the median of the other windows' values, else
-    1 µmol m-2 s-1 (our choices).
+    Rref: the window's night Rref; where it has none, the median of the other
+    windows' values, else 1 µmol m-2 s-1 (our choices).
     """
-    mask = windows["mask"] & (windows["rg"] > 0)
+    mask = windows["day"]
     count = len(mask)
     theta = np.empty((count, 4))
     theta[:, _ALPHA] = np.clip(_ALPHA_START, lower[_ALPHA], upper[_ALPHA])
@@ -426,13 +750,9 @@ def _starting_values(windows, lower, upper) -> np.ndarray:
         spread[has_day] = np.abs(quantiles[1] - quantiles[0])
     theta[:, _BETA0] = np.clip(spread, 1.0, 0.9 * upper[_BETA0])
     theta[:, _K] = 0.0
-    numerator = (windows["night_nee"] * windows["night_factor"]).sum(axis=1)
-    denominator = (windows["night_factor"] ** 2).sum(axis=1)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        night_rref = np.where(denominator > 0, numerator / denominator, np.nan)
-    usable = np.isfinite(night_rref) & (night_rref > 0)
-    fallback = float(np.median(night_rref[usable])) if usable.any() else 1.0
-    theta[:, _RREF] = np.maximum(np.where(usable, night_rref, fallback), _RREF_FLOOR_START)
+    usable = np.isfinite(rref_night)
+    fallback = float(np.median(rref_night[usable])) if usable.any() else 1.0
+    theta[:, _RREF] = np.maximum(np.where(usable, rref_night, fallback), _RREF_FLOOR_START)
     return theta
 
 
@@ -450,9 +770,11 @@ def _model(theta, windows, vpd0):
 
 
 def _residuals(theta, windows, mask, vpd0):
+    """Weighted residuals, weighted Jacobian and half the weighted sum of squares."""
     modelled, jacobian = _model(theta, windows, vpd0)
-    residual = np.where(mask, modelled - windows["nee"], 0.0)
-    jacobian = np.where(mask[:, :, None], jacobian, 0.0)
+    weight = windows["weight"]
+    residual = np.where(mask, (modelled - windows["nee"]) * weight, 0.0)
+    jacobian = np.where(mask[:, :, None], jacobian * weight[:, :, None], 0.0)
     return residual, jacobian, 0.5 * (residual**2).sum(axis=1)
 
 
@@ -522,17 +844,19 @@ def _marquardt_step(theta, fixed, lower, upper, windows, mask, vpd0, damping):
 
 
 def _standard_errors(theta, fixed, lower, upper, windows, mask, vpd0):
-    """Standard errors from (J^T J)^-1 s^2 over the free parameters, and the fit RMSE."""
+    """Standard errors from (J^T W J)^-1 s^2 over the free parameters, and the fit RMSE."""
     residual, jacobian, _ = _residuals(np.nan_to_num(theta), windows, mask, vpd0)
+    modelled, _ = _model(np.nan_to_num(theta), windows, vpd0)
     points = mask.sum(axis=1)
     normal = np.einsum("wpi,wpj->wij", jacobian, jacobian)
     diagonal = np.diagonal(normal, axis1=1, axis2=2)
     free = ~fixed & (theta > lower) & (theta < upper) & (diagonal > 0)
     free_count = free.sum(axis=1)
     sum_squares = (residual**2).sum(axis=1)
+    plain_squares = np.where(mask, (modelled - windows["nee"]) ** 2, 0.0).sum(axis=1)
     with np.errstate(divide="ignore", invalid="ignore"):
         variance = np.where(points > free_count, sum_squares / (points - free_count), np.nan)
-        rmse = np.where(points > 0, np.sqrt(sum_squares / points), np.nan)
+        rmse = np.where(points > 0, np.sqrt(plain_squares / points), np.nan)
     identity = np.eye(4)
     # Invert the correlation form D^-1/2 N D^-1/2 so that the very different
     # scales of the parameters do not count as ill-conditioning.
@@ -549,36 +873,98 @@ def _standard_errors(theta, fixed, lower, upper, windows, mask, vpd0):
     return np.where(free, errors, np.nan), rmse
 
 
-def _judge(theta, standard_errors, fixed, fitted, converged, lower, upper):
-    """Accept or reject each window; return flags and reasons."""
-    alpha, beta0, rref = theta[:, _ALPHA], theta[:, _BETA0], theta[:, _RREF]
+def _singular(theta, errors, fixed, lower, upper):
+    alpha = theta[:, _ALPHA]
     with np.errstate(invalid="ignore"):
         interior = ~fixed & (theta > lower) & (theta < upper)
         interior[:, [_BETA0, _K]] &= (alpha > 0)[:, None]
-        singular = (interior & ~np.isfinite(standard_errors)).any(axis=1)
-    rules = [
-        (~fitted, "too few points"),
-        (~converged, "no convergence"),
-        (alpha >= upper[_ALPHA], "alpha at upper bound"),
+        return (interior & ~np.isfinite(errors)).any(axis=1)
+
+
+def _judge(theta, errors, fixed, fitted, converged, lower, upper, rref_night, rref_night_se,
+           consistency_z):
+    """Status, reason and whether to refit with the night Rref, per window."""
+    alpha, beta0, rref = theta[:, _ALPHA], theta[:, _BETA0], theta[:, _RREF]
+    with np.errstate(invalid="ignore"):
+        distance = np.abs(rref - rref_night) / np.sqrt(errors[:, _RREF] ** 2 + rref_night_se**2)
+        inconsistent = np.isfinite(rref_night) & np.where(
+            np.isfinite(distance), distance > consistency_z, False)
+    rejections = [(~fitted, "too few daytime records"), (~converged, "no convergence")]
+    replacements = [
         (rref <= 0, "rref at zero"),
-        (singular, "singular fit"),
+        (alpha >= upper[_ALPHA], "alpha at upper bound"),
+        (alpha <= lower[_ALPHA], "alpha at lower bound"),
+        (beta0 >= upper[_BETA0], "beta0 at upper bound"),
+        (_singular(theta, errors, fixed, lower, upper), "singular fit"),
+        (inconsistent, "rref differs from night rref"),
     ]
-    accepted = np.ones(len(theta), dtype=bool)
-    reason = np.full(len(theta), "ok", dtype=object)
-    for condition, why in rules:
-        reason[accepted & condition] = why
-        accepted &= ~condition
-    reason[accepted & (alpha <= lower[_ALPHA])] = "alpha at lower bound"
-    reason[accepted & (alpha > 0) & (beta0 >= upper[_BETA0])] = "beta0 at upper bound"
-    return accepted, reason.astype(str)
+    status = np.full(len(theta), "accepted", dtype=object)
+    reason = np.full(len(theta), "", dtype=object)
+    open_ = np.ones(len(theta), dtype=bool)
+    for condition, why in rejections:
+        chosen = open_ & condition
+        status[chosen], reason[chosen] = "rejected", why
+        open_ &= ~condition
+    refit = np.zeros(len(theta), dtype=bool)
+    for condition, why in replacements:
+        chosen = open_ & condition
+        reason[chosen] = why
+        refit |= chosen
+        open_ &= ~condition
+    no_night = refit & ~np.isfinite(rref_night)
+    status[no_night] = "rejected"
+    reason[no_night] = reason[no_night] + "; too few night records to refit"
+    return status, reason, refit & ~no_night
 
 
-def _interpolate_parameters(days, centres, theta, accepted):
-    """Parameters per record: linear in time between accepted window centres."""
+def _refit_with_night_rref(refit, theta, errors, rmse, fixed, status, reason, rref_night,
+                           rref_night_se, theta0, lower, upper, windows, usable_day_mask,
+                           vpd0, max_iterations):
+    """Constrained refit of the chosen windows: Rref fixed at the night Rref."""
+    rows = np.flatnonzero(refit)
+    subset = {name: windows[name][rows] for name in _MODEL_INPUTS}
+    mask = usable_day_mask[rows]
+    subset = {**subset, "nee": np.where(mask, subset["nee"], 0.0)}
+    start = theta0[rows].copy()
+    start[:, _RREF] = rref_night[rows]
+    sub_fixed = fixed[rows].copy()
+    sub_fixed[:, _RREF] = True
+    new_theta, converged = _levenberg_marquardt(start, sub_fixed, lower, upper, subset, mask,
+                                                vpd0, max_iterations)
+    new_errors, new_rmse = _standard_errors(new_theta, sub_fixed, lower, upper, subset, mask,
+                                            vpd0)
+    new_errors[:, _RREF] = rref_night_se[rows]
+    alpha, beta0 = new_theta[:, _ALPHA], new_theta[:, _BETA0]
+    failed = [(~converged, "no convergence"), (alpha >= upper[_ALPHA], "alpha at upper bound"),
+              (_singular(new_theta, new_errors, sub_fixed, lower, upper), "singular fit")]
+    sub_status = np.full(len(rows), "replaced", dtype=object)
+    sub_reason = np.array([f"{why}; refit with night rref" for why in reason[rows]],
+                          dtype=object)
+    open_ = np.ones(len(rows), dtype=bool)
+    for condition, why in failed:
+        chosen = open_ & condition
+        sub_status[chosen] = "rejected"
+        sub_reason[chosen] = [f"{text}, which failed: {why}" for text in sub_reason[chosen]]
+        open_ &= ~condition
+    notes = open_ & (alpha <= lower[_ALPHA])
+    sub_reason[notes] = [f"{text} (alpha at lower bound: no assimilation)"
+                         for text in sub_reason[notes]]
+    notes = open_ & (alpha > lower[_ALPHA]) & (beta0 >= upper[_BETA0])
+    sub_reason[notes] = [f"{text} (beta0 at upper bound)" for text in sub_reason[notes]]
+    theta, errors, rmse, fixed = theta.copy(), errors.copy(), rmse.copy(), fixed.copy()
+    theta[rows], errors[rows], rmse[rows], fixed[rows] = new_theta, new_errors, new_rmse, \
+        sub_fixed
+    status, reason = status.copy(), reason.copy()
+    status[rows], reason[rows] = sub_status, sub_reason
+    return theta, errors, rmse, fixed, status, reason
+
+
+def _interpolate_parameters(days, centres, theta, used):
+    """Parameters per record: linear in time between the centres of windows in use."""
     per_record = np.empty((len(days), 4))
-    light_identified = accepted & (theta[:, _ALPHA] > 0)
-    for column, usable in ((_ALPHA, accepted), (_BETA0, light_identified),
-                           (_K, light_identified), (_RREF, accepted)):
+    light_identified = used & (theta[:, _ALPHA] > 0)
+    for column, usable in ((_ALPHA, used), (_BETA0, light_identified),
+                           (_K, light_identified), (_RREF, used)):
         if usable.any():
             per_record[:, column] = np.interp(days, centres[usable], theta[usable, column])
         else:
@@ -586,10 +972,13 @@ def _interpolate_parameters(days, centres, theta, accepted):
     return per_record
 
 
-def _parameter_table(index, starts, ends, windows, theta, standard_errors, rmse, accepted,
-                     reason, k_fixed) -> pd.DataFrame:
+def _parameter_table(index, fit) -> pd.DataFrame:
     origin = index[0].normalize()
     to_time = lambda offsets: origin + pd.to_timedelta(offsets, unit="D")  # noqa: E731
+    starts, ends, windows, theta, errors = (fit["starts"], fit["ends"], fit["windows"],
+                                            fit["theta"], fit["errors"])
+    e0_fit, status, count = fit["e0_fit"], fit["status"], len(fit["starts"])
+    reason = np.where(fit["reason"] == "", "ok", fit["reason"])
     table = pd.DataFrame({
         "window_start": to_time(starts),
         "window_end": to_time(ends),
@@ -601,13 +990,21 @@ def _parameter_table(index, starts, ends, windows, theta, standard_errors, rmse,
         "k": theta[:, _K],
         "rref": theta[:, _RREF],
         "e0": windows["e0"],
-        "alpha_se": standard_errors[:, _ALPHA],
-        "beta0_se": standard_errors[:, _BETA0],
-        "k_se": standard_errors[:, _K],
-        "rref_se": standard_errors[:, _RREF],
-        "rmse": rmse,
-        "accepted": accepted,
-        "reason": reason,
-        "k_fixed": k_fixed,
+        "alpha_se": errors[:, _ALPHA],
+        "beta0_se": errors[:, _BETA0],
+        "k_se": errors[:, _K],
+        "rref_se": errors[:, _RREF],
+        "e0_se": e0_fit["e0_se"],
+        "e0_points": e0_fit["points"].astype(np.int64),
+        "e0_window_days": e0_fit["width"],
+        "e0_source": e0_fit["source"].astype(str),
+        "rref_night": fit["rref_night"],
+        "rref_night_se": fit["rref_night_se"],
+        "rmse": fit["rmse"],
+        "weighted": np.full(count, bool(fit["weighted"])),
+        "accepted": status != "rejected",
+        "status": status.astype(str),
+        "reason": reason.astype(str),
+        "k_fixed": fit["k_fixed"],
     })
     return table[list(PARAMETER_COLUMNS)]
