@@ -1,20 +1,30 @@
-"""Figures and a self-contained report page for a result folder: ``fluxpart report``.
+"""A self-contained report page for a result folder: ``fluxpart report``.
 
-:func:`build_report` reads a folder written by :meth:`fluxpart.Result.write`,
-draws the diagnostic figures as PNG files and writes ``report.html``: one page
-with every figure embedded as a data URI, inline CSS, no scripts and nothing
-to fetch, so it can be mailed, archived or opened offline. The page gives the
-site, the annual budget with its uncertainty and coverage, the screening
-audit trail, the settings and the papers behind each method, the warnings and
-the cautions that go with a tower budget.
+:func:`build_report` reads a folder written by :meth:`fluxpart.Result.write`
+(the Parquet tables and ``manifest.json``, nothing else: no method is re-run and
+no pipeline or method module is imported) and writes ``report.html``: one page
+with every figure embedded as a compressed PNG data URI, inline CSS, no scripts
+and nothing to fetch, so it can be mailed, archived, printed to PDF or opened
+offline. The figures are also written beside it as PNG files.
 
-Figures are drawn with matplotlib (the ``report`` extra) on the Agg canvas
-without pyplot, so no display and no global backend change is needed.
-matplotlib is imported only when a report is built. Colour scales read in grey
-and for colour-blind readers: sequential maps are viridis and cividis, and NEE
-has a scale of our own whose lightness rises steadily from strong uptake (dark
-blue) to release (pale orange), with the hue changing at zero. PNG files carry
-no timestamp or software tag, so the same folder gives the same bytes.
+The page is ordered for a reader who has five minutes:
+
+1. the title and the caution that a tower budget is not a certified credit;
+2. a summary card in plain words and numbers per budget period: net uptake with
+   its 95 % interval in g C m-2 and t CO2 ha-1, GPP and Reco by both methods,
+   the share gap-filled, the u* threshold, the clock check and whether the two
+   partitioning methods agree;
+3. the warnings of the run;
+4. the figures, each with a one-sentence caption saying what to look for
+   (drawn by :mod:`fluxpart.figures`);
+5. the detailed tables, folded in ``<details>``; the methods and references;
+   and at the end every setting with its value, meaning and source, where a
+   value recalled from memory and not yet checked against its paper is marked
+   once, in that table.
+
+Columns that older result folders lack (95 % intervals, 1-sigma columns, the
+clock check, budget-year periods) are shown when present and named as absent
+otherwise.
 """
 
 from __future__ import annotations
@@ -22,65 +32,41 @@ from __future__ import annotations
 import base64
 import html
 import inspect
-import io
 import re
-from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
 
-from .budget import flux_to_carbon
 from .config import Config
 from .constants import CARBON_MOLAR_MASS, CO2_MOLAR_MASS, SOLAR_CONSTANT
-from .errors import FluxpartError
-from .manifest import CAUTION, read_manifest
-from .pipeline import load
-from .responses import LASSLOP_VPD0_HPA, light_response, lloyd_taylor
-from .store import atomic_write_bytes
-
-__all__ = ["FIGURES", "build_report", "command_report"]
-
-#: File names of the figures, in page order.
-FIGURES = (
-    "heatmaps.png",
-    "cumulative_nee.png",
-    "monthly_gpp_reco.png",
-    "diurnal_by_month.png",
-    "night_respiration.png",
-    "ustar_threshold.png",
-    "light_response.png",
+from .errors import InputFileError
+from .figures import (
+    FIGURES,
+    Written,
+    clock_sentence,
+    draw_figures,
+    interval_minutes,
+    period_masks,
+    window_status,
 )
+from .manifest import CAUTION
+from .resultdir import read_folder
+from .store import atomic_write_bytes
+from .units import CARBON_UNIT, FLUX_UNIT, T_CO2_HA_PER_G_C_M2, display_unit
 
-_DPI = 100
-_FLUX_UNIT = "µmol m-2 s-1"
-_CARBON_UNIT = "g C m-2"
+__all__ = ["FIGURES", "build_report", "command_report", "read_written"]
 
-# Okabe & Ito (2008) colour-blind-safe palette, used with distinct line styles and
-# markers so that lines can be told apart in grey too.
-_GREEN = "#009E73"
-_VERMILLION = "#D55E00"
-_BLUE = "#0072B2"
-_ORANGE = "#E69F00"
-_BLACK = "#000000"
-
-_RC = {
-    "font.family": "DejaVu Sans",
-    "font.size": 9.0,
-    "axes.titlesize": 10.0,
-    "axes.labelsize": 9.0,
-    "axes.grid": True,
-    "grid.color": "#d0d0d0",
-    "grid.linewidth": 0.5,
-    "legend.fontsize": 8.0,
-    "legend.frameon": False,
-    "image.interpolation": "nearest",
-    "svg.hashsalt": "fluxpart",
-}
+_FLUX_UNIT = FLUX_UNIT
+_CARBON_UNIT = CARBON_UNIT
+_T_CO2_PER_HA_PER_G_C_M2 = T_CO2_HA_PER_G_C_M2
 
 _BUDGET_COLUMNS = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime",
                    "ustar_threshold")
-_COVERAGE_PATTERN = re.compile(r"records.*|complete|share_.*|nee_share_from_filled")
+_COVERAGE_PATTERN = re.compile(r"records.*|complete|share_.*|nee_share_from_filled|period_.*")
+_FLUX_NAMES = {"gpp_nighttime": "GPP, nighttime method", "gpp_daytime": "GPP, daytime method",
+               "reco_nighttime": "Reco, nighttime method",
+               "reco_daytime": "Reco, daytime method", "nee": "NEE"}
 
 _REFERENCES = {
     "reichstein2005": "Reichstein, M. et al. (2005). On the separation of net ecosystem exchange "
@@ -113,568 +99,247 @@ _REFERENCES = {
 }
 
 
-@dataclass(frozen=True)
-class _Figure:
-    """One drawn figure: file name, PNG bytes, title and caption (plain text)."""
-
-    name: str
-    png: bytes
-    title: str
-    caption: str
 
 
-# --------------------------------------------------------------------------- matplotlib
+# ------------------------------------------------------------------------------ reading
 
 
-def _matplotlib():
-    """Import matplotlib's object-oriented parts, or explain how to install them."""
+def read_written(directory) -> Written:
+    """Read every table a result folder's manifest lists, and the manifest itself.
+
+    Parameters
+    ----------
+    directory : path-like
+        Result folder written by :meth:`fluxpart.Result.write`.
+
+    Returns
+    -------
+    fluxpart.figures.Written
+        The manifest, the tables by manifest name and the run's settings.
+
+    Raises
+    ------
+    InputFileError
+        If the folder has no manifest, does not match it (seal, table hashes; see
+        :func:`fluxpart.resultdir.read_folder`), or lacks a table the report needs.
+    """
+    directory = Path(directory)
+    manifest, tables = read_folder(directory)
+    for name in ("timeseries", "annual"):
+        if name not in tables:
+            raise InputFileError(f"the manifest of {str(directory)!r} lists no {name!r} table; "
+                                 "the report needs it")
+    return Written(manifest=manifest, tables=tables, config=dict(manifest.get("config", {})))
+
+
+# ------------------------------------------------------------------------------ summary
+
+
+def _finite(value) -> bool:
     try:
-        import matplotlib
-        from matplotlib import colors, dates
-        from matplotlib.backends.backend_agg import FigureCanvasAgg
-        from matplotlib.figure import Figure
-    except ImportError:
-        raise FluxpartError(
-            "the report needs matplotlib, which is not installed; install the report extra "
-            'with: pip install "fluxpart[report]"') from None
-    return matplotlib, colors, dates, FigureCanvasAgg, Figure
+        return value is not None and bool(np.isfinite(float(value)))
+    except (TypeError, ValueError):
+        return False
 
 
-class _Drawing:
-    """matplotlib modules plus the helpers every figure uses."""
-
-    def __init__(self):
-        self.mpl, self.colors, self.dates, self._canvas, self._figure = _matplotlib()
-
-    def figure(self, width, height):
-        figure = self._figure(figsize=(width, height), dpi=_DPI, layout="constrained")
-        self._canvas(figure)
-        return figure
-
-    def png(self, figure) -> bytes:
-        buffer = io.BytesIO()
-        figure.savefig(buffer, format="png", dpi=_DPI, metadata={"Software": None})
-        return buffer.getvalue()
-
-    def nee_colormap(self):
-        """Our NEE scale: lightness rises monotonically, hue changes from blue to orange at 0."""
-        uptake = self.colors.LinearSegmentedColormap.from_list(
-            "uptake", ["#0b1a4a", "#1f4f9a", "#5b93cc", "#a7cbe6"])
-        release = self.colors.LinearSegmentedColormap.from_list(
-            "release", ["#efb46c", "#f4cc8f", "#f8e2b6"])
-        table = np.vstack([uptake(np.linspace(0.0, 1.0, 128)),
-                           release(np.linspace(0.0, 1.0, 128))])
-        return self.colors.ListedColormap(table, name="fluxpart_nee").with_extremes(
-            bad="#ffffff")
-
-    def nee_norm(self, *arrays):
-        values = np.concatenate([np.asarray(a, dtype=float).ravel() for a in arrays])
-        values = values[np.isfinite(values)]
-        if values.size == 0:
-            return self.colors.TwoSlopeNorm(vcenter=0.0, vmin=-1.0, vmax=1.0)
-        low = min(float(np.percentile(values, 0.5)), -1e-3)
-        high = max(float(np.percentile(values, 99.5)), 1e-3)
-        return self.colors.TwoSlopeNorm(vcenter=0.0, vmin=low, vmax=high)
-
-    def date_axis(self, axis):
-        locator = self.dates.AutoDateLocator(minticks=4, maxticks=13)
-        axis.xaxis.set_major_locator(locator)
-        axis.xaxis.set_major_formatter(self.dates.ConciseDateFormatter(locator))
+def _number(value, decimals: int, key: str, label, unit: str = "") -> str:
+    """A summary number in a span whose data attributes name its column and period."""
+    if not _finite(value):
+        return f'<span class="missing" data-summary="{_e(key)}" data-year="{_e(label)}">n/a</span>'
+    text = f"{float(value):.{decimals}f}".replace("-", "−")
+    unit_html = f' <span class="unit">{_e(unit)}</span>' if unit else ""
+    return (f'<span class="number" data-summary="{_e(key)}" data-year="{_e(label)}" '
+            f'data-decimals="{decimals}" data-value="{float(value)!r}">{text}</span>{unit_html}')
 
 
-def _no_data(axis, text):
-    axis.text(0.5, 0.5, text, transform=axis.transAxes, ha="center", va="center",
-              fontsize=10, color="#444444", wrap=True)
-    axis.set_xticks([])
-    axis.set_yticks([])
+def interval_of(row: pd.Series, flux: str):
+    """(kind, low, high) of a flux's annual uncertainty as written.
+
+    ``("ci95", low, high)`` from ``{flux}_ci95_low``/``_high`` where the run wrote a
+    95 % interval; else ``("combined", value - u, value + u)`` from
+    ``{flux}_uncertainty_total`` (root sum of squares of the parts, not a
+    calibrated 95 % interval); else ``(None, nan, nan)``.
+    """
+    low, high = row.get(f"{flux}_ci95_low"), row.get(f"{flux}_ci95_high")
+    if _finite(low) and _finite(high):
+        return "ci95", float(low), float(high)
+    total, value = row.get(f"{flux}_uncertainty_total"), row.get(flux)
+    if _finite(total) and _finite(value):
+        return "combined", float(value) - float(total), float(value) + float(total)
+    return None, np.nan, np.nan
 
 
-def _panels(figure, count, ncols, **options):
-    """A grid of `count` axes (the spare ones hidden), returned as a flat list."""
-    ncols = max(1, min(ncols, count))
-    nrows = -(-count // ncols)
-    grid = figure.subplots(nrows, ncols, squeeze=False, **options).ravel()
-    for axis in grid[count:]:
-        axis.set_visible(False)
-    return list(grid[:count])
+def _interval_html(kind, low, high, decimals, key, label, row) -> str:
+    if kind == "ci95":
+        return (f"95 % interval {_number(low, decimals, key + '_ci95_low', label)} to "
+                f"{_number(high, decimals, key + '_ci95_high', label)}")
+    if kind == "combined":
+        half = row[f"{key}_uncertainty_total"]
+        return (f"± {_number(half, decimals, key + '_uncertainty_total', label)} "
+                '(combined uncertainty<sup><a href="#note-combined">*</a></sup>)')
+    return "no uncertainty written"
 
 
-# ------------------------------------------------------------------------------ data
+def _period_heading(label, first, last, partial) -> str:
+    span = f"{first:%d %b %Y} – {last:%d %b %Y}"
+    if partial:
+        return (f"{_e(label)}: {span}, partial period — sums over the records present, not an "
+                "annual total")
+    return f"{_e(label)}: {span}"
 
 
-def _interval_minutes(index: pd.DatetimeIndex) -> int:
-    seconds = np.diff(index.to_numpy().astype("datetime64[s]").astype(np.int64))
-    return int(np.median(seconds) // 60) if seconds.size else 30
+def _ustar_range(written: Written, label) -> str:
+    table = written.table("ustar")
+    if not len(table) or not {"period", "year", "threshold_p05", "threshold_p95"} <= set(
+            table.columns):
+        return ""
+    rows = table[(table["period"] == "year") & (table["year"] == label)]
+    if not len(rows):
+        return ""
+    low, high = rows.iloc[0]["threshold_p05"], rows.iloc[0]["threshold_p95"]
+    if not (_finite(low) and _finite(high)):
+        return ""
+    return f" (bootstrap 5–95 %: {float(low):.3f}–{float(high):.3f} m s-1)"
 
 
-def _day_grid(index: pd.DatetimeIndex, values, interval: int):
-    """Values on a (day, time of day) grid; returns (grid, first day, number of days)."""
-    days = index.normalize()
-    first = days[0]
-    day_position = ((days - first) / pd.Timedelta(days=1)).to_numpy().astype(int)
-    slot = ((index - days) / pd.Timedelta(minutes=interval)).to_numpy().astype(int)
-    per_day = 1440 // interval
-    n_days = int(day_position[-1]) + 1
-    grid = np.full((n_days, per_day), np.nan)
-    grid[day_position, np.clip(slot, 0, per_day - 1)] = np.asarray(values, dtype=float)
-    return grid, first, n_days
-
-
-def _hour_of_day(index: pd.DatetimeIndex, interval: int) -> np.ndarray:
-    """Hour of the middle of each interval [h]."""
-    return ((index - index.normalize()) / pd.Timedelta(hours=1)).to_numpy() + interval / 120.0
-
-
-def _day_of_year(index: pd.DatetimeIndex, interval: int) -> np.ndarray:
-    """Fractional day of year at the middle of each interval, 0 at 1 January 00:00 [days]."""
-    start = pd.to_datetime(pd.DataFrame({"year": index.year, "month": 1, "day": 1}))
-    offset = (index - pd.DatetimeIndex(start)) / pd.Timedelta(days=1)
-    return np.asarray(offset, dtype=float) + interval / 2880.0
-
-
-def _temperature_column(timeseries: pd.DataFrame, config: Config) -> str:
-    driver = config.respiration_driver
-    for name in (f"{driver}_filled", driver):
-        if name in timeseries.columns:
-            return name
-    raise FluxpartError(f"the timeseries table has no column {driver!r} or {driver + '_filled'!r}"
-                        " (the respiration driver of the run)")
-
-
-def _year_colours(drawing, years):
-    colormap = drawing.mpl.colormaps["cividis"]
-    positions = np.linspace(0.0, 0.8, len(years)) if len(years) > 1 else [0.0]
-    return {year: colormap(p) for year, p in zip(years, positions, strict=True)}
-
-
-# --------------------------------------------------------------------------- figures
-
-
-def _figure_heatmaps(drawing, result, interval) -> _Figure:
-    series = result.timeseries
-    panels = [("nee_measured", "Measured NEE (after screening and the u* filter)", "nee"),
-              ("nee_filled", "Gap-filled NEE", "nee"),
-              ("gpp_nighttime", "GPP, nighttime method", "viridis"),
-              ("reco_nighttime", "Reco, nighttime method (Lloyd–Taylor)", "cividis")]
-    figure = drawing.figure(10.0, 11.5)
-    axes = figure.subplots(len(panels), 1, sharex=True)
-    nee_norm = drawing.nee_norm(series["nee_measured"], series["nee_filled"])
-    nee_map = drawing.nee_colormap()
-    for axis, (column, title, scale) in zip(axes, panels, strict=True):
-        grid, first, n_days = _day_grid(series.index, series[column].to_numpy(), interval)
-        start = drawing.dates.date2num(first.to_pydatetime())
-        extent = (start, start + n_days, 0.0, 24.0)
-        if scale == "nee":
-            colormap, norm = nee_map, nee_norm
+def _summary_card(written: Written) -> tuple[str, bool]:
+    """The summary per budget period; also whether a combined (non-95 %) uncertainty is shown."""
+    annual = written.annual
+    periods = period_masks(written)
+    cards, combined_used = [], False
+    for label, (_, first, last, _, partial) in periods.items():
+        row = annual.loc[label]
+        nee = float(row["nee"]) if _finite(row.get("nee")) else np.nan
+        kind, low, high = interval_of(row, "nee")
+        combined_used |= kind == "combined"
+        verb = "took up" if nee < 0 else "released"
+        # t CO2 ha-1 of uptake (positive = uptake): written by the run where present
+        uptake = row.get("net_uptake_t_co2_per_ha")
+        if not _finite(uptake) and _finite(nee):
+            uptake = -nee * _T_CO2_PER_HA_PER_G_C_M2
+        if kind == "ci95":
+            t_text = (f"{_number(-high * _T_CO2_PER_HA_PER_G_C_M2, 2, 'uptake_ci95_low', label)}"
+                      f" to {_number(-low * _T_CO2_PER_HA_PER_G_C_M2, 2, 'uptake_ci95_high', label)}")
+            t_interval = f"95 % interval {t_text}"
+        elif _finite(row.get("net_uptake_t_co2_per_ha_uncertainty")):
+            t_interval = ("± " + _number(row["net_uptake_t_co2_per_ha_uncertainty"], 2,
+                                         "net_uptake_t_co2_per_ha_uncertainty", label)
+                          + " (combined)")
         else:
-            finite = grid[np.isfinite(grid)]
-            high = float(np.percentile(finite, 99.5)) if finite.size else 1.0
-            colormap = drawing.mpl.colormaps[scale].with_extremes(bad="#ffffff")
-            norm = drawing.colors.Normalize(vmin=0.0, vmax=max(high, 1e-3))
-        image = axis.imshow(grid.T, origin="lower", aspect="auto", extent=extent,
-                            cmap=colormap, norm=norm, interpolation="nearest")
-        axis.grid(False)
-        axis.set_title(title, loc="left")
-        axis.set_ylabel("Time of day [h]")
-        axis.set_yticks([0, 6, 12, 18, 24])
-        bar = figure.colorbar(image, ax=axis, extend="both", pad=0.01, fraction=0.04)
-        bar.set_label(f"[{_FLUX_UNIT}]")
-    drawing.date_axis(axes[-1])
-    axes[-1].set_xlabel("Date (day of year; local standard time)")
-    caption = ("Heat maps of the fluxes by day (horizontal) and time of day (vertical), "
-               f"{_FLUX_UNIT}. NEE scale: dark blue is strong uptake, pale orange is release; "
-               "lightness rises steadily with NEE and the hue changes at zero, so the scale "
-               "also reads in grey. White cells in the measured panel are records removed by "
-               "screening or the u* filter, or missing. GPP uses viridis, Reco cividis. "
-               "Colour limits are the 0.5th and 99.5th percentiles.")
-    return _Figure("heatmaps.png", drawing.png(figure), "Fluxes by day and time of day", caption)
+            t_interval = "no uncertainty written"
+        headline = (
+            f'<p class="headline">The ecosystem {verb} net '
+            f"{_number(abs(nee), 0, 'nee_abs', label, _CARBON_UNIT)} of carbon: "
+            f"NEE {_number(nee, 1, 'nee', label, _CARBON_UNIT)} "
+            f"({_interval_html(kind, low, high, 1, 'nee', label, row)}), a net uptake of "
+            f"{_number(uptake, 2, 'net_uptake_t_co2_per_ha', label, 't CO2 ha-1')} "
+            f"({t_interval}).</p>")
+        flux_rows = []
+        for part in ("gpp", "reco"):
+            cells = []
+            for method in ("nighttime", "daytime"):
+                flux = f"{part}_{method}"
+                kind_f, low_f, high_f = interval_of(row, flux)
+                combined_used |= kind_f == "combined"
+                cells.append(f"<td>{_number(row.get(flux), 0, flux, label)} "
+                             f'<span class="small">{_interval_html(kind_f, low_f, high_f, 0, flux, label, row)}'
+                             "</span></td>")
+            name = "GPP (gross uptake)" if part == "gpp" else "Reco (ecosystem respiration)"
+            flux_rows.append(f'<tr><th scope="row">{name}</th>{"".join(cells)}</tr>')
+        flux_table = ('<table class="summary-fluxes"><thead><tr><th scope="col">'
+                      f'[{_CARBON_UNIT}]</th><th scope="col">Nighttime method</th>'
+                      '<th scope="col">Daytime method</th></tr></thead>'
+                      f"<tbody>{''.join(flux_rows)}</tbody></table>")
+        facts = []
+        if _finite(row.get("share_measured")):
+            filled = 1.0 - float(row["share_measured"])
+            parts = [f"{name} {100 * float(row[column]):.1f} %"
+                     for name, column in (("A", "share_filled_a"), ("B", "share_filled_b"),
+                                          ("C", "share_filled_c"), ("unfilled", "share_unfilled"))
+                     if _finite(row.get(column))]
+            facts.append(f"<li><strong>Gap-filled:</strong> "
+                         f"{_number(100 * filled, 1, 'share_gap_filled_percent', label, '%')} of "
+                         f"the records ({', '.join(parts)})"
+                         + (f"; {100 * float(row['nee_share_from_filled']):.0f} % of the sum of "
+                            "|NEE| comes from filled records"
+                            if _finite(row.get("nee_share_from_filled")) else "") + ".</li>")
+        if "ustar_threshold" in row.index:
+            facts.append("<li><strong>u* threshold:</strong> "
+                         f"{_number(row['ustar_threshold'], 3, 'ustar_threshold', label, 'm s-1')}"
+                         f"{_ustar_range(written, label)}; night records below it were "
+                         "removed before gap filling.</li>")
+        facts.append(f"<li><strong>Clock check:</strong> "
+                     f"{_e(clock_sentence(written.manifest))}.</li>")
+        if "methods_agree" in row.index and pd.notna(row["methods_agree"]):
+            agree = bool(row["methods_agree"])
+            margin = written.setting("agreement_margin")
+            relative = [f"{name} {100 * float(row[column]):+.1f} %"
+                        for name, column in (("GPP", "gpp_relative_difference"),
+                                             ("Reco", "reco_relative_difference"))
+                        if _finite(row.get(column))]
+            facts.append(
+                f'<li><strong>Method agreement:</strong> <span data-summary="methods_agree" '
+                f'data-year="{_e(label)}" data-value="{int(agree)}">'
+                f"{'the two partitioning methods agree' if agree else 'the two partitioning methods DISAGREE'}"
+                f"</span> (daytime minus nighttime: {', '.join(relative) or 'n/a'}"
+                + (f"; margin ±{100 * float(margin):.0f} %" if _finite(margin) else "")
+                + ").</li>")
+        cards.append(f'<div class="card" data-period="{_e(label)}"><h3>'
+                     f"{_period_heading(label, first, last, partial)}</h3>{headline}"
+                     f"{flux_table}<ul>{''.join(facts)}</ul></div>")
+    return "".join(cards), combined_used
 
 
-def _cumulative_bands(result, interval):
-    """Per year: (day of year, cumulative NEE [g C m-2], bands: list of (low, high, label))."""
-    series = result.timeseries
-    annual = result.annual
-    per_record = float(flux_to_carbon(1.0, interval))
-    doy = _day_of_year(series.index, interval)
-    years = series.index.year.to_numpy()
-    scenario_columns = [c for c in annual.columns if re.fullmatch(r"nee_ustar_p[\d.]+", c)]
-    has_random = "nee_random_error" in series.columns
-    out = {}
-    for year in np.unique(years):
-        rows = years == year
-        carbon = series["nee_filled"].to_numpy()[rows] * per_record
-        cumulative = np.nancumsum(carbon)
-        bands = []
-        if has_random:
-            sigma = series["nee_random_error"].to_numpy()[rows] * per_record
-            spread = 1.96 * np.sqrt(np.nancumsum(sigma**2))
-            bands.append((cumulative - spread, cumulative + spread, "random"))
-        if scenario_columns and int(year) in annual.index:
-            row = annual.loc[int(year)]
-            totals = np.array([row[c] for c in scenario_columns] + [row["nee"]], dtype=float)
-            totals = totals[np.isfinite(totals)]
-            if totals.size:
-                fraction = np.arange(1, rows.sum() + 1) / float(rows.sum())
-                central = float(row["nee"])
-                low = cumulative + (totals.min() - central) * fraction
-                high = cumulative + (totals.max() - central) * fraction
-                bands.append((low, high, "ustar"))
-        out[int(year)] = (doy[rows], cumulative, bands)
-    return out, scenario_columns, has_random
+def _reading_notes(combined_used: bool) -> str:
+    notes = [
+        "NEE &lt; 0 is net uptake by the ecosystem; GPP and Reco are positive. Budgets are in "
+        "grams of carbon per square metre (g C m-2); t CO2 ha-1 = g C m-2 × "
+        f"{CO2_MOLAR_MASS}/{CARBON_MOLAR_MASS} × 0.01.",
+        "The uncertainty covers the parts the run computed (random error, u* threshold, "
+        "partitioning method); systematic errors of the measurement itself (energy-balance "
+        "closure, advection, storage, footprint) are not included.",
+    ]
+    if combined_used:
+        notes.append('<span id="note-combined">* Combined uncertainty: the root sum of squares '
+                     "of the random error (standard deviation) and the u* and method half-ranges "
+                     "written by the run; this result folder has no 95 % interval, so the value "
+                     "is not one.</span>")
+    return '<ul class="notes">' + "".join(f"<li>{n}</li>" for n in notes) + "</ul>"
 
 
-def _figure_cumulative(drawing, result, interval) -> _Figure:
-    curves, scenario_columns, has_random = _cumulative_bands(result, interval)
-    figure = drawing.figure(9.0, 5.0)
-    axis = figure.subplots()
-    colours = _year_colours(drawing, list(curves))
-    hatches = {"random": None, "ustar": "////"}
-    for year, (doy, cumulative, bands) in curves.items():
-        colour = colours[year]
-        for low, high, kind in bands:
-            label = (f"{year}: 95 % random-error interval" if kind == "random"
-                     else f"{year}: u* threshold scenario range")
-            axis.fill_between(doy, low, high, color=colour, alpha=0.22 if kind == "random"
-                              else 0.12, hatch=hatches[kind], edgecolor=colour, linewidth=0.0,
-                              label=label)
-            if kind == "ustar":
-                axis.plot(doy, low, color=colour, linestyle=":", linewidth=0.9)
-                axis.plot(doy, high, color=colour, linestyle=":", linewidth=0.9)
-        axis.plot(doy, cumulative, color=colour, linewidth=1.8, label=f"{year}: gap-filled NEE")
-    axis.axhline(0.0, color="#555555", linewidth=0.8)
-    axis.set_xlim(0, 366)
-    axis.set_xlabel("Day of year")
-    axis.set_ylabel(f"Cumulative NEE [{_CARBON_UNIT}]")
-    axis.set_title("Cumulative NEE (below zero: net uptake since 1 January)", loc="left")
-    axis.legend(loc="best")
-    parts = ["Cumulative sum of gap-filled NEE over each calendar year, "
-             f"{_CARBON_UNIT}; negative values are net uptake."]
-    if has_random:
-        parts.append("The solid band is the 95 % interval of the random measurement error "
-                     "(±1.96 times the square root of the cumulative sum of the per-record "
-                     "error variances, records taken as independent; Hollinger & Richardson "
-                     "2005, Richardson et al. 2006).")
-    if scenario_columns:
-        names = ", ".join(c.replace("nee_ustar_", "") for c in scenario_columns)
-        parts.append("The hatched band is the range of the annual NEE over the u* threshold "
-                     f"scenarios (bootstrap percentiles {names} and the central threshold), "
-                     "spread linearly in time over the year: it shows the size of the u* "
-                     "threshold's share of the uncertainty at year end, not how it builds up "
-                     "during the year.")
-    if not has_random and not scenario_columns:
-        parts.append("No uncertainty band: the run had no u* scenarios and no per-record "
-                     "random error.")
-    if not has_random:
-        parts.append("The random measurement error is not included in the band.")
-    caption = " ".join(parts)
-    return _Figure("cumulative_nee.png", drawing.png(figure), "Cumulative NEE and its "
-                   "uncertainty", caption)
+# ------------------------------------------------------------------------------ settings
 
 
-def _figure_monthly(drawing, result) -> _Figure:
-    monthly = result.monthly
-    months = pd.DatetimeIndex(monthly.index)
-    figure = drawing.figure(9.0, 4.8)
-    axis = figure.subplots()
-    x = months + pd.Timedelta(days=14)
-    styles = [("gpp_nighttime", "GPP, nighttime method", _GREEN, "-", "o"),
-              ("gpp_daytime", "GPP, daytime method", _GREEN, "--", "s"),
-              ("reco_nighttime", "Reco, nighttime method", _VERMILLION, "-", "^"),
-              ("reco_daytime", "Reco, daytime method", _VERMILLION, "--", "D")]
-    for column, label, colour, line, marker in styles:
-        if column in monthly.columns:
-            axis.plot(x, monthly[column].to_numpy(dtype=float), color=colour, linestyle=line,
-                      marker=marker, markersize=5, markerfacecolor="white" if line == "--"
-                      else colour, linewidth=1.5, label=label)
-    drawing.date_axis(axis)
-    axis.set_xlabel("Month")
-    axis.set_ylabel(f"Monthly sum [{_CARBON_UNIT}]")
-    axis.set_title("Monthly GPP and Reco by both partitioning methods", loc="left")
-    axis.legend(loc="upper left", ncols=2)
-    caption = (f"Monthly sums of GPP and Reco, {_CARBON_UNIT} per month: nighttime method "
-               "(Reichstein et al. 2005; Lloyd & Taylor 1994), solid lines with filled markers; "
-               "daytime light-response method (Lasslop et al. 2010), dashed lines with open "
-               "markers. Where the two methods differ strongly, the partitioning of that "
-               "month is uncertain.")
-    return _Figure("monthly_gpp_reco.png", drawing.png(figure), "Monthly GPP and Reco", caption)
+_RECALLED = re.compile(r"\s*\(m\)")
 
 
-def _figure_diurnal(drawing, result, interval) -> _Figure:
-    series = result.timeseries
-    hour = _hour_of_day(series.index, interval)
-    month = series.index.month.to_numpy()
-    figure = drawing.figure(11.0, 8.0)
-    axes = figure.subplots(3, 4, sharex=True, sharey=True).ravel()
-    lines = [("nee_filled", "NEE (gap-filled)", _BLACK, "-"),
-             ("gpp_nighttime", "GPP (nighttime method)", _GREEN, "--"),
-             ("reco_nighttime", "Reco (nighttime method)", _VERMILLION, ":")]
-    names = ["January", "February", "March", "April", "May", "June", "July", "August",
-             "September", "October", "November", "December"]
-    for number, axis in enumerate(axes, start=1):
-        rows = month == number
-        axis.set_title(names[number - 1], loc="left")
-        if not rows.any():
-            axis.text(0.5, 0.5, "no records", transform=axis.transAxes, ha="center",
-                      va="center", color="#444444")
-            continue
-        for column, label, colour, style in lines:
-            means = pd.Series(series[column].to_numpy()[rows]).groupby(hour[rows]).mean()
-            axis.plot(means.index.to_numpy(), means.to_numpy(), color=colour, linestyle=style,
-                      linewidth=1.6, label=label)
-        axis.axhline(0.0, color="#888888", linewidth=0.6)
-    for axis in axes[8:]:
-        axis.set_xlabel("Time of day [h]")
-        axis.set_xticks([0, 6, 12, 18, 24])
-    for axis in axes[::4]:
-        axis.set_ylabel(f"[{_FLUX_UNIT}]")
-    axes[0].set_xlim(0, 24)
-    handles, labels = axes[int(np.argmax([a.has_data() for a in axes]))].get_legend_handles_labels()
-    figure.legend(handles, labels, loc="outside lower center", ncols=3)
-    caption = (f"Mean diurnal course per calendar month (all years pooled), {_FLUX_UNIT}: "
-               "gap-filled NEE (solid black), GPP (dashed green) and Reco (dotted vermillion) "
-               "of the nighttime method; local standard time, each point at the middle of its "
-               "interval.")
-    return _Figure("diurnal_by_month.png", drawing.png(figure), "Mean diurnal course per month",
-                   caption)
+def _source_check(note: str) -> str:
+    """How the source of a setting stands: recalled, our choice, common practice, cited."""
+    if _RECALLED.search(note):
+        return "recalled from memory, not yet checked against the paper"
+    if "our choice" in note:
+        return "our choice (reason in the note)"
+    if "common practice" in note:
+        return "common practice"
+    if re.search(r"et al\.|\(\d{4}\)|\d{4}\)", note):
+        return "cited"
+    return "–"
 
 
-def _evenly_spaced(count, wanted):
-    if count <= wanted:
-        return np.arange(count)
-    return np.unique(np.round(np.linspace(0, count - 1, wanted)).astype(int))
-
-
-def _figure_night_respiration(drawing, result, interval) -> _Figure:
-    series = result.timeseries
-    temperature_column = _temperature_column(series, result.config)
-    night = series["is_night"].to_numpy(dtype=bool) & np.isfinite(series["nee_measured"])
-    years = np.unique(series.index.year)
-    e0_annual = result.parameters.get("nighttime_e0_annual", pd.DataFrame())
-    rref_windows = result.parameters.get("nighttime_rref", pd.DataFrame())
-    figure = drawing.figure(5.0 * min(len(years), 3) + 1.0, 4.6 * -(-len(years) // 3))
-    axes = _panels(figure, len(years), 3)
-    colormap = drawing.mpl.colormaps["viridis"]
-    norm = drawing.colors.Normalize(vmin=0.0, vmax=366.0)
-    temperature = series[temperature_column].to_numpy(dtype=float)
-    nee = series["nee_measured"].to_numpy(dtype=float)
-    doy = _day_of_year(series.index, interval)
-    scatter = None
-    for axis, year in zip(axes, years, strict=True):
-        rows = night & (series.index.year == year)
-        axis.set_title(f"{year}", loc="left")
-        if not rows.any():
-            _no_data(axis, "no measured night records")
-            continue
-        scatter = axis.scatter(temperature[rows], nee[rows], c=doy[rows], cmap=colormap,
-                               norm=norm, s=4, alpha=0.5, linewidths=0, rasterized=False)
-        e0 = (float(e0_annual.loc[year, "e0"]) if year in e0_annual.index else np.nan)
-        windows = (rref_windows[pd.DatetimeIndex(rref_windows["window_centre"]).year == year]
-                   if len(rref_windows) else rref_windows)
-        windows = windows[np.isfinite(windows["rref"])] if len(windows) else windows
-        times = series.index[rows]
-        for position in _evenly_spaced(len(windows), 6):
-            window = windows.iloc[position]
-            inside = (times >= window["window_start"]) & (times < window["window_end"])
-            span = temperature[rows][inside]
-            span = span[np.isfinite(span)]
-            if span.size < 2:
-                continue
-            grid = np.linspace(span.min(), span.max(), 50)
-            curve = lloyd_taylor(grid, window["rref"], window["e0"])
-            centre = pd.Timestamp(window["window_centre"])
-            colour = colormap(norm(centre.day_of_year - 0.5))
-            axis.plot(grid, curve, color="#000000", linewidth=3.0)
-            axis.plot(grid, curve, color=colour, linewidth=1.8)
-        if np.isfinite(e0) and len(windows):
-            finite = temperature[rows][np.isfinite(temperature[rows])]
-            grid = np.linspace(np.percentile(finite, 1), np.percentile(finite, 99), 80)
-            rref = float(np.median(windows["rref"]))
-            axis.plot(grid, lloyd_taylor(grid, rref, e0), color="#000000", linestyle="--",
-                      linewidth=1.6, label=f"E0 = {e0:.1f} K, median Rref = {rref:.2f} "
-                      f"{_FLUX_UNIT}")
-            axis.legend(loc="upper left")
-        axis.set_xlabel(f"{_temperature_label(temperature_column)} [°C]")
-        axis.set_ylabel(f"Night NEE [{_FLUX_UNIT}]")
-    if scatter is not None:
-        bar = figure.colorbar(scatter, ax=axes, pad=0.01, fraction=0.03)
-        bar.set_label("Day of year")
-    caption = (f"Measured night NEE ({_FLUX_UNIT}) against {_temperature_label(temperature_column)}"
-               " [°C], points coloured by day of year. Solid curves: Lloyd–Taylor respiration "
-               "(Lloyd & Taylor 1994, eq. 11) with the Rref of up to six evenly spaced "
-               f"{result.config.rref_window_days:g}-day windows and the year's E0, each drawn over "
-               "the temperature range of its window and coloured by its centre day. Dashed: the "
-               "year's E0 with the median Rref of the windows (Reichstein et al. 2005).")
-    return _Figure("night_respiration.png", drawing.png(figure), "Night respiration and the "
-                   "Lloyd–Taylor fits", caption)
-
-
-def _temperature_label(column: str) -> str:
-    return "Soil temperature" if column.startswith("tsoil") else "Air temperature"
-
-
-def _ustar_class_means(series: pd.DataFrame, classes: int) -> dict:
-    """Night NEE by u* class per year: mean u* [m s-1], mean and standard error of NEE."""
-    reason = series["rejection_reason"].to_numpy()
-    usable = (series["is_night"].to_numpy(dtype=bool) & np.isin(reason, (0, 5))
-              & np.isfinite(series["nee"]) & np.isfinite(series["ustar"]))
-    out = {}
-    for year in np.unique(series.index.year):
-        rows = usable & (series.index.year == year)
-        ustar = series["ustar"].to_numpy()[rows]
-        nee = series["nee"].to_numpy()[rows]
-        if ustar.size < 2 * classes:
-            continue
-        edges = np.quantile(ustar, np.linspace(0.0, 1.0, classes + 1))
-        # classes (e[i-1], e[i]], the lowest closed: equal record counts
-        group = np.clip(np.searchsorted(edges, ustar, side="left") - 1, 0, classes - 1)
-        frame = pd.DataFrame({"group": group, "ustar": ustar, "nee": nee}).groupby("group")
-        stats = frame.agg(ustar=("ustar", "mean"), nee=("nee", "mean"), sd=("nee", "std"),
-                          n=("nee", "size"))
-        stats["se"] = stats["sd"] / np.sqrt(stats["n"])
-        out[int(year)] = stats
-    return out
-
-
-def _figure_ustar(drawing, result) -> _Figure:
-    series = result.timeseries
-    classes = result.config.ustar_classes
-    means = _ustar_class_means(series, classes)
-    table = result.ustar
-    draws = result.parameters.get("ustar_bootstrap", pd.DataFrame())
-    years = sorted(set(int(y) for y in np.unique(series.index.year)))
-    colours = _year_colours(drawing, years)
-    figure = drawing.figure(11.0, 4.6)
-    left, right = figure.subplots(1, 2)
-    annual_rows = table[table["period"] == "year"].set_index("year") if len(table) else table
-    for year in years:
-        colour = colours[year]
-        if year in means:
-            stats = means[year]
-            left.errorbar(stats["ustar"], stats["nee"], yerr=stats["se"], color=colour,
-                          marker="o", markersize=4, linewidth=1.2, capsize=2,
-                          label=f"{year}: class means ± 1 s.e.")
-        if year in annual_rows.index:
-            threshold = float(annual_rows.loc[year, "threshold"])
-            left.axvline(threshold, color=colour, linestyle="--", linewidth=1.4,
-                         label=f"{year}: threshold {threshold:.3f} m s-1")
-            if {"threshold_p05", "threshold_p95"} <= set(annual_rows.columns):
-                low = float(annual_rows.loc[year, "threshold_p05"])
-                high = float(annual_rows.loc[year, "threshold_p95"])
-                if np.isfinite(low) and np.isfinite(high):
-                    left.axvspan(low, high, color=colour, alpha=0.15, linewidth=0)
-    if not means:
-        _no_data(left, "too few night records for u* classes")
-    else:
-        left.set_xlabel("u* (class mean) [m s-1]")
-        left.set_ylabel(f"Night NEE (class mean) [{_FLUX_UNIT}]")
-        left.legend(loc="lower right")
-    left.set_title(f"Night NEE in {classes} u* classes", loc="left")
-    annual_draws = (draws[draws["period"] == "year"] if len(draws) and "period" in draws.columns
-                    else pd.DataFrame())
-    values = annual_draws["threshold"].to_numpy(dtype=float) if len(annual_draws) else np.array([])
-    values = values[np.isfinite(values)]
-    if values.size:
-        edges = np.histogram_bin_edges(values, bins=min(25, max(5, values.size // 4)))
-        for year in years:
-            chosen = annual_draws.loc[annual_draws["year"] == year, "threshold"].to_numpy(float)
-            chosen = chosen[np.isfinite(chosen)]
-            if chosen.size:
-                right.hist(chosen, bins=edges, histtype="stepfilled", alpha=0.35,
-                           color=colours[year], edgecolor=colours[year], linewidth=1.2,
-                           label=f"{year}: {chosen.size} draws")
-            if year in annual_rows.index:
-                right.axvline(float(annual_rows.loc[year, "threshold"]), color=colours[year],
-                              linestyle="--", linewidth=1.4)
-        right.set_xlabel("u* threshold [m s-1]")
-        right.set_ylabel("Bootstrap draws [count]")
-        right.legend(loc="upper right")
-    else:
-        _no_data(right, "no bootstrap distribution\n(fixed threshold or no draws)")
-    right.set_title("Bootstrap distribution of the annual threshold", loc="left")
-    caption = ("Left: mean night NEE in classes of equal record count of u*, from the night "
-               "records that passed every screen except the u* filter, pooled over the year "
-               "(the detector itself works within seasons and temperature classes, Reichstein "
-               "et al. 2005; Papale et al. 2006); error bars are one standard error; dashed "
-               "lines mark the applied annual threshold and the shading its bootstrap 5–95 % "
-               "range. Right: the annual threshold of each bootstrap resample of the night "
-               "data, with the applied threshold dashed.")
-    return _Figure("ustar_threshold.png", drawing.png(figure), "u* threshold diagnostics",
-                   caption)
-
-
-def _light_windows(parameters: pd.DataFrame, wanted: int = 4) -> pd.DataFrame:
-    """Pick up to `wanted` accepted windows spread over the record, the best-filled of each part."""
-    if not len(parameters):
-        return parameters
-    accepted = parameters[parameters["accepted"].astype(bool)
-                          & np.isfinite(parameters[["alpha", "beta0", "k", "rref", "e0"]]).all(
-                              axis=1)]
-    accepted = accepted.sort_values("window_centre", kind="stable")
-    if not len(accepted):
-        return accepted
-    picks = []
-    for part in np.array_split(np.arange(len(accepted)), min(wanted, len(accepted))):
-        block = accepted.iloc[part]
-        picks.append(block.index[int(np.argmax(block["points"].to_numpy()))])
-    return accepted.loc[picks]
-
-
-def _figure_light_response(drawing, result) -> _Figure:
-    series = result.timeseries
-    windows = _light_windows(result.parameters.get("daytime", pd.DataFrame()))
-    temperature_column = _temperature_column(series, result.config)
-    rg_column = "rg_filled" if "rg_filled" in series.columns else "rg"
-    vpd_column = "vpd_filled" if "vpd_filled" in series.columns else "vpd"
-    figure = drawing.figure(10.0, 8.0)
-    count = max(len(windows), 1)
-    axes = _panels(figure, count, 2)
-    colormap = drawing.mpl.colormaps["cividis"]
-    day = ~series["is_night"].to_numpy(dtype=bool) & np.isfinite(series["nee_measured"])
-    vpd_all = series[vpd_column].to_numpy(dtype=float)[day]
-    vpd_high = float(np.nanpercentile(vpd_all, 99)) if np.isfinite(vpd_all).any() else 1.0
-    norm = drawing.colors.Normalize(vmin=0.0, vmax=max(vpd_high, 1.0))
-    scatter = None
-    if not len(windows):
-        _no_data(axes[0], "no accepted light-response windows")
-    for axis, (_, window) in zip(axes, windows.iterrows(), strict=False):
-        inside = day & (series.index >= window["window_start"]) & (
-            series.index < window["window_end"])
-        rg = series[rg_column].to_numpy(dtype=float)[inside]
-        vpd = series[vpd_column].to_numpy(dtype=float)[inside]
-        temperature = series[temperature_column].to_numpy(dtype=float)[inside]
-        nee = series["nee_measured"].to_numpy(dtype=float)[inside]
-        scatter = axis.scatter(rg, nee, c=vpd, cmap=colormap, norm=norm, s=14,
-                               edgecolors="#333333", linewidths=0.3)
-        grid = np.linspace(0.0, max(float(np.nanmax(rg)) if rg.size else 1.0, 1.0), 100)
-        vpd_typical = float(np.nanmedian(vpd)) if np.isfinite(vpd).any() else 0.0
-        t_typical = float(np.nanmedian(temperature)) if np.isfinite(temperature).any() else 10.0
-        model = (lloyd_taylor(np.full_like(grid, t_typical), window["rref"], window["e0"])
-                 - light_response(grid, np.full_like(grid, vpd_typical), window["alpha"],
-                                  window["beta0"], window["k"]))
-        axis.plot(grid, model, color="#000000", linewidth=1.8,
-                  label=f"fit at VPD {vpd_typical:.1f} hPa, T {t_typical:.1f} °C")
-        start = pd.Timestamp(window["window_start"])
-        end = pd.Timestamp(window["window_end"]) - pd.Timedelta(minutes=1)
-        axis.set_title(f"{start:%Y-%m-%d} to {end:%Y-%m-%d} ({int(window['points'])} records)",
-                       loc="left")
-        axis.text(0.98, 0.97, f"α = {window['alpha']:.4f} µmol J-1\nβ0 = {window['beta0']:.1f} "
-                  f"{_FLUX_UNIT}\nk = {window['k']:.3f} hPa-1\nRref = {window['rref']:.2f} "
-                  f"{_FLUX_UNIT}", transform=axis.transAxes, ha="right", va="top", fontsize=7.5,
-                  bbox={"facecolor": "white", "edgecolor": "#bbbbbb", "alpha": 0.85})
-        axis.set_xlabel("Global radiation Rg [W m-2]")
-        axis.set_ylabel(f"Daytime NEE [{_FLUX_UNIT}]")
-        axis.legend(loc="lower left")
-    if scatter is not None:
-        bar = figure.colorbar(scatter, ax=axes, pad=0.01, fraction=0.03)
-        bar.set_label("VPD [hPa]")
-    caption = ("Measured daytime NEE against global radiation in up to four accepted "
-               f"{result.config.daytime_window_days:g}-day light-response windows spread over the "
-               "record (the best-filled window of each part), points coloured by VPD. The "
-               "curve is the fitted model NEE = −αβRg/(αRg + β) + Rref·LT(T), β = β0·exp(−k(VPD "
-               f"− {LASSLOP_VPD0_HPA:g} hPa)) above {LASSLOP_VPD0_HPA:g} hPa (Lasslop et al. "
-               "2010), drawn at the window's median "
-               "VPD and temperature; points at other VPD and temperature scatter about it.")
-    return _Figure("light_response.png", drawing.png(figure), "Light-response fits", caption)
+def _settings_table(config: dict) -> str:
+    notes = _config_notes()
+    rows = []
+    for key, value in sorted(config.items()):
+        note = notes.get(key, "")
+        check = _source_check(note)
+        css = ' class="unchecked"' if check.startswith("recalled") else ""
+        rows.append(f'<tr><th scope="row"><code>{_e(key)}</code></th>'
+                    f'<td data-setting="{_e(key)}">{_e(_setting_value(value))}</td>'
+                    f'<td class="description">{_e(_RECALLED.sub("", note))}</td>'
+                    f'<td{css} data-check="{_e(key)}">{_e(check)}</td></tr>')
+    return ('<table id="settings"><thead><tr><th scope="col">Setting</th><th scope="col">Value'
+            '</th><th scope="col">Meaning and source</th><th scope="col">Source checked?</th>'
+            f"</tr></thead><tbody>{''.join(rows)}</tbody></table>")
 
 
 # ------------------------------------------------------------------------------ page
@@ -718,7 +383,8 @@ def _field_metadata(path: Path) -> dict[str, tuple[str, str]]:
     out = {}
     for field in schema:
         meta = field.metadata or {}
-        out[field.name] = (meta.get(b"unit", b"").decode(), meta.get(b"description", b"").decode())
+        out[field.name] = (display_unit(meta.get(b"unit", b"").decode()),
+                           meta.get(b"description", b"").decode())
     return out
 
 
@@ -864,58 +530,78 @@ def _methods(config: dict, has_random: bool) -> tuple[str, list[str]]:
 
 _CSS = """
 body { font-family: "DejaVu Sans", Verdana, Arial, sans-serif; color: #1a1a1a;
-       max-width: 1100px; margin: 1.5em auto; padding: 0 1em; line-height: 1.45; }
-h1 { font-size: 1.6em; margin-bottom: 0.2em; }
+       max-width: 1100px; margin: 1.2em auto; padding: 0 1em; line-height: 1.45; }
+h1 { font-size: 1.55em; margin-bottom: 0.2em; }
 h2 { font-size: 1.25em; border-bottom: 2px solid #2c4a7a; padding-bottom: 0.15em;
-     margin-top: 2em; }
-h3 { font-size: 1.05em; margin-top: 1.4em; }
-table { border-collapse: collapse; margin: 0.6em 0 1.2em; font-size: 0.85em; }
+     margin-top: 1.6em; }
+h3 { font-size: 1.05em; margin: 0.9em 0 0.4em; }
+table { border-collapse: collapse; margin: 0.5em 0 1em; font-size: 0.85em; }
 .scroll { overflow-x: auto; max-width: 100%; }
 tbody th { text-align: left; font-weight: 600; }
-tbody td:first-child { white-space: nowrap; }
 th, td { border: 1px solid #c8c8c8; padding: 0.2em 0.5em; vertical-align: top; }
 thead th { background: #e8edf5; }
 td.number { text-align: right; font-variant-numeric: tabular-nums; }
-td.missing { color: #777777; text-align: center; }
+td.missing, span.missing { color: #777777; }
 td.unit, span.unit { color: #444444; white-space: nowrap; }
-td.description { color: #333333; max-width: 28em; }
+td.description { color: #333333; max-width: 30em; }
+td.unchecked { background: #fff1d6; }
 code { font-family: "DejaVu Sans Mono", Consolas, monospace; font-size: 0.95em; }
-.caution { border: 2px solid #8a4b00; background: #fff4e0; padding: 0.7em 1em; margin: 1em 0; }
-.warning { border-left: 5px solid #8a4b00; background: #fbf3e8; padding: 0.4em 0.8em;
+.caution { border: 2px solid #8a4b00; background: #fff4e0; padding: 0.6em 1em; margin: 0.8em 0; }
+.card { border: 1px solid #2c4a7a; border-left: 6px solid #2c4a7a; background: #f5f8fc;
+        padding: 0.3em 1em 0.6em; margin: 0.8em 0; break-inside: avoid; }
+.headline { font-size: 1.12em; margin: 0.4em 0; }
+.card ul { margin: 0.3em 0; padding-left: 1.2em; }
+.card table { background: #ffffff; }
+.small { font-size: 0.85em; color: #333333; }
+.notes { font-size: 0.85em; color: #333333; }
+.warning { border-left: 5px solid #b04a00; background: #fbf0e4; padding: 0.4em 0.8em;
            margin: 0.4em 0; }
-figure { margin: 1.5em 0; }
+figure { margin: 1.2em 0; break-inside: avoid; }
 figure img { max-width: 100%; height: auto; border: 1px solid #dddddd; }
-figcaption { font-size: 0.9em; color: #333333; margin-top: 0.4em; }
+figcaption { font-size: 0.92em; color: #222222; margin-top: 0.3em; }
+details { margin: 0.5em 0; border: 1px solid #d8d8d8; padding: 0.3em 0.7em; }
+summary { cursor: pointer; font-weight: 600; }
 .meta { color: #444444; font-size: 0.9em; }
 .hash { font-family: "DejaVu Sans Mono", Consolas, monospace; font-size: 0.8em;
         word-break: break-all; }
+@media print {
+  body { max-width: none; margin: 0; font-size: 10pt; }
+  details::details-content { content-visibility: visible; display: block; }
+  details > * { display: block; }
+  .scroll { overflow: visible; }
+  h2 { break-after: avoid; }
+}
 """
 
 
-def _site_table(manifest: dict, result, interval: int) -> str:
-    site = manifest.get("site", {})
-    index = result.timeseries.index
-    rows = [("Name", site.get("name", result.site.name)),
-            ("Latitude [degrees north]",
-             f"{float(site.get('latitude', result.site.latitude)):.4f}"),
-            ("Longitude [degrees east]",
-             f"{float(site.get('longitude', result.site.longitude)):.4f}"),
-            ("UTC offset of local standard time [h]",
-             f"{float(site.get('utc_offset', result.site.utc_offset)):g}"),
-            ("First record (start)", f"{index[0]:%Y-%m-%d %H:%M}"),
-            ("Last record (start)", f"{index[-1]:%Y-%m-%d %H:%M}"),
-            ("Records", f"{len(index)}"),
-            ("Record length [min]", f"{interval}")]
-    keys = ["name", "latitude", "longitude", "utc_offset", "first", "last", "records",
-            "interval"]
+def _site_table(written: Written, interval: int) -> str:
+    site = written.manifest.get("site", {})
+    index = written.timeseries.index
+
+    def number(key, digits):
+        return f"{float(site[key]):.{digits}f}" if _finite(site.get(key)) else "n/a"
+
+    rows = [("name", "Name", site.get("name", "")),
+            ("latitude", "Latitude [degrees north]", number("latitude", 4)),
+            ("longitude", "Longitude [degrees east]", number("longitude", 4)),
+            ("utc_offset", "UTC offset of local standard time [h]",
+             f"{float(site['utc_offset']):g}" if _finite(site.get("utc_offset")) else "n/a"),
+            ("first", "First record (start)", f"{index[0]:%Y-%m-%d %H:%M}"),
+            ("last", "Last record (start)", f"{index[-1]:%Y-%m-%d %H:%M}"),
+            ("records", "Records", f"{len(index)}"),
+            ("interval", "Record length [min]", f"{interval}")]
     body = "".join(f'<tr><th scope="row">{_e(label)}</th><td data-site="{key}">{_e(value)}</td>'
-                   "</tr>" for key, (label, value) in zip(keys, rows, strict=True))
+                   "</tr>" for key, label, value in rows)
     return f'<table id="site"><tbody>{body}</tbody></table>'
 
 
-def _screening_table(counts: pd.Series, total: int) -> str:
+def _screening_table(written: Written) -> str:
+    table = written.table("screening")
+    if not len(table) or "records" not in table.columns:
+        return "<p>No screening table in this result folder.</p>"
+    total = len(written.timeseries)
     rows = []
-    for reason, records in counts.items():
+    for reason, records in table["records"].items():
         share = records / total if total else np.nan
         rows.append(f'<tr><th scope="row"><code>{_e(reason)}</code></th>'
                     + _cell(int(records), 0, {"column": "records", "reason": reason})
@@ -923,6 +609,25 @@ def _screening_table(counts: pd.Series, total: int) -> str:
     return ('<table id="screening"><thead><tr><th scope="col">Reason (first that applied)</th>'
             '<th scope="col">Records</th><th scope="col">Share of records</th></tr></thead>'
             f"<tbody>{''.join(rows)}</tbody></table>")
+
+
+def _windows_html(written: Written) -> str:
+    parameters = written.table("parameters_daytime")
+    if not len(parameters):
+        return ""
+    states = window_status(parameters)
+    counts = states["state"].value_counts()
+    tally = ", ".join(f"{int(n)} {state}" for state, n in counts.items())
+    flagged = parameters[states["state"] != "accepted"]
+    columns = [c for c in ("window_start", "window_end", "points", "alpha", "beta0", "k", "rref")
+               if c in flagged.columns]
+    frame = flagged[columns].assign(state=states.loc[flagged.index, "state"],
+                                    why=states.loc[flagged.index, "why"])
+    frame = frame[[*columns[:2], "state", "why", *columns[2:]]] if len(columns) >= 2 else frame
+    meta = {}
+    return (f"<h3>Light-response windows</h3><p>{len(parameters)} windows: {_e(tally)}. "
+            "Windows that are not plainly accepted:</p>"
+            + _frame_table(frame.reset_index(drop=True), meta, "daytime-windows", "window"))
 
 
 def _provenance(manifest: dict) -> str:
@@ -937,6 +642,9 @@ def _provenance(manifest: dict) -> str:
     if "demo" in provenance:
         parts.append(f'<tr><th scope="row">demo</th><td>invented demo data: '
                      f"{_e(provenance['demo'])}</td></tr>")
+    if "clock" in provenance:
+        parts.append(f'<tr><th scope="row">clock check</th><td>{_e(provenance["clock"])}'
+                     "</td></tr>")
     parts.append(f'<tr><th scope="row">seed</th><td>{_e(manifest.get("seed", ""))}</td></tr>')
     versions = manifest.get("versions", {})
     parts.append('<tr><th scope="row">versions</th><td>' + _e(", ".join(
@@ -950,26 +658,25 @@ def _provenance(manifest: dict) -> str:
             f'</th><th scope="col">SHA-256</th></tr></thead><tbody>{tables}</tbody></table>')
 
 
-def _page(manifest: dict, result, directory: Path, figures, interval: int) -> str:
-    annual_path = directory / manifest["tables"]["annual"]["file"]
-    monthly_path = directory / manifest["tables"]["monthly"]["file"]
-    annual_meta = _field_metadata(annual_path)
-    monthly_meta = _field_metadata(monthly_path)
-    groups = _annual_groups(result.annual)
-    has_random = "nee_random_error" in result.timeseries.columns
-    site_name = manifest.get("site", {}).get("name", result.site.name)
+def _details(title: str, body: str, ident: str) -> str:
+    return f'<details id="{_e(ident)}"><summary>{_e(title)}</summary>{body}</details>'
+
+
+def _page(written: Written, directory: Path, figures, interval: int) -> str:
+    manifest = written.manifest
+    entries = manifest.get("tables", {})
+
+    def metadata(name):
+        return _field_metadata(directory / entries[name]["file"]) if name in entries else {}
+
+    annual = written.annual
+    annual_meta = metadata("annual")
+    groups = _annual_groups(annual)
+    has_random = "nee_random_error" in written.timeseries.columns
+    site_name = manifest.get("site", {}).get("name", "")
     caution = manifest.get("caution", CAUTION)
-    cautions = [CAUTION] if caution == CAUTION else [CAUTION, caution]
-    cautions += [
-        "NEE < 0 is net uptake by the ecosystem; GPP and Reco are reported positive. All "
-        "budgets are in grams of carbon per square metre (g C m-2), not of CO2 (multiply by "
-        f"{CO2_MOLAR_MASS}/{CARBON_MOLAR_MASS} for g CO2 m-2).",
-        "The uncertainty shown covers the parts the run computed (see the uncertainty table); "
-        "systematic errors of the measurement itself (energy-balance closure, advection, "
-        "storage, footprint) are not included.",
-        "Years marked incomplete are sums over the records present, not annual totals.",
-    ]
-    warnings = manifest.get("warnings", list(result.warnings))
+    summary, combined_used = _summary_card(written)
+    warnings = manifest.get("warnings", [])
     warning_html = ("".join(f'<p class="warning">{_e(w)}</p>' for w in warnings) if warnings
                     else "<p>No warnings were recorded for this run.</p>")
     figure_html = "".join(
@@ -977,84 +684,77 @@ def _page(manifest: dict, result, directory: Path, figures, interval: int) -> st
         f'<img src="data:image/png;base64,{base64.b64encode(f.png).decode("ascii")}" '
         f'alt="{_e(f.title)}"><figcaption>{_e(f.caption)}</figcaption></figure>'
         for f in figures)
-    month_columns = [c for c in result.monthly.columns
-                     if _COVERAGE_PATTERN.fullmatch(c) and _is_reportable(result.monthly[c])]
-    monthly = result.monthly[month_columns]
-    ustar_meta = _field_metadata(directory / manifest["tables"]["ustar"]["file"])
-    e0_annual = result.parameters.get("nighttime_e0_annual")
-    e0_html = ""
-    if e0_annual is not None and len(e0_annual):
-        e0_meta = _field_metadata(directory / manifest["tables"]["parameters_nighttime_e0_annual"]
-                                  ["file"])
-        e0_html = ("<h3>Lloyd–Taylor temperature sensitivity per year</h3>"
-                   + _frame_table(e0_annual.reset_index(), e0_meta, "e0-annual", "year"))
-    daytime = result.parameters.get("daytime")
-    daytime_html = ""
-    if daytime is not None and len(daytime):
-        accepted = int(daytime["accepted"].astype(bool).sum())
-        daytime_html = (f"<p>Light-response windows accepted: {accepted} of {len(daytime)}.</p>")
-    notes = _config_notes()
-    config = manifest.get("config", {})
-    settings = "".join(f'<tr><th scope="row"><code>{_e(key)}</code></th>'
-                       f'<td data-setting="{_e(key)}">{_e(_setting_value(value))}</td>'
-                       f'<td class="description">{_e(notes.get(key, ""))}</td></tr>'
-                       for key, value in sorted(config.items()))
+    monthly = written.table("monthly")
+    month_columns = [c for c in monthly.columns
+                     if _COVERAGE_PATTERN.fullmatch(c) and _is_reportable(monthly[c])]
+    ustar = written.table("ustar")
+    e0_annual = written.table("parameters_nighttime_e0_annual")
+    details = [
+        _details("Annual budget table", _annual_table(annual, groups["budget"], annual_meta,
+                                                       "annual-budget"), "details-budget"),
+        _details("Uncertainty of the annual budget: every part written",
+                 "<p>The u* threshold scenarios rerun gap filling and both partitionings with "
+                 "the threshold at bootstrap percentiles; the method difference compares the "
+                 "daytime with the nighttime partitioning.</p>"
+                 + _annual_table(annual, groups["uncertainty"], annual_meta,
+                                 "annual-uncertainty"), "details-uncertainty"),
+        _details("Coverage and fill quality per year and month",
+                 _annual_table(annual, groups["coverage"], annual_meta, "annual-coverage")
+                 + (_frame_table(monthly[month_columns].reset_index(), metadata("monthly"),
+                                 "monthly-coverage", "month") if len(month_columns) else ""),
+                 "details-coverage"),
+        _details("Screening of NEE records", _screening_table(written), "details-screening"),
+        _details("u* thresholds and respiration parameters",
+                 (_frame_table(ustar.reset_index(drop=True), metadata("ustar"), "ustar", "row")
+                  if len(ustar) else "<p>No u* table.</p>")
+                 + ("<h3>Lloyd–Taylor temperature sensitivity per period</h3>"
+                    + _frame_table(e0_annual.reset_index(),
+                                   metadata("parameters_nighttime_e0_annual"), "e0-annual",
+                                   "year") if len(e0_annual) else "")
+                 + _windows_html(written), "details-parameters"),
+        _details("Site, inputs, versions and table hashes",
+                 _site_table(written, interval) + _provenance(manifest), "details-provenance"),
+    ]
+    config = written.config
     methods, cited = _methods(config, has_random)
     references = "".join(f"<li>{_e(_REFERENCES[key])}</li>" for key in cited)
+    extra_caution = ("" if caution == CAUTION
+                     else f'<p class="caution">{_e(caution)}</p>')
     page = f"""<!DOCTYPE html>
 <html lang="en">
 <head>
 <meta charset="utf-8">
 <meta name="viewport" content="width=device-width, initial-scale=1">
-<title>fluxpart report: {_e(site_name)}</title>
+<title>Carbon budget report: {_e(site_name)}</title>
 <style>{_CSS}</style>
 </head>
 <body>
 <header>
 <h1>Carbon budget report: <span id="site-name">{_e(site_name)}</span></h1>
-<p class="meta">Written by fluxpart {_e(manifest.get("versions", {}).get("fluxpart", ""))} from
-the result folder <code>{_e(directory.name)}</code> (format {_e(manifest.get("format", ""))}).</p>
+<p class="meta">Eddy-covariance record {_e(_span(written))}; written by fluxpart
+{_e(manifest.get("versions", {}).get("fluxpart", ""))} from the result folder
+<code>{_e(directory.name)}</code>.</p>
 <div class="caution" id="caution-top"><strong>Caution.</strong> {_e(CAUTION)}</div>
+{extra_caution}
 </header>
 <main>
-<section id="section-site"><h2>Site and record</h2>
-{_site_table(manifest, result, interval)}</section>
-<section id="section-budget"><h2>Annual budget</h2>
-<p>Sums over each calendar year of the records present; NEE &lt; 0 is net uptake.</p>
-{_annual_table(result.annual, groups["budget"], annual_meta, "annual-budget")}
-<h3>Uncertainty of the annual budget</h3>
-<p>The u* threshold scenarios rerun gap filling and both partitionings with the threshold at
-bootstrap percentiles; the method difference compares the daytime with the nighttime
-partitioning.</p>
-{_annual_table(result.annual, groups["uncertainty"], annual_meta, "annual-uncertainty")}
-</section>
-<section id="section-figures"><h2>Figures</h2>{figure_html}</section>
-<section id="section-audit"><h2>Audit trail and coverage</h2>
-<h3>Screening of NEE records</h3>
-{_screening_table(result.screening_counts, len(result.timeseries))}
-<h3>Coverage and fill quality per year</h3>
-{_annual_table(result.annual, groups["coverage"], annual_meta, "annual-coverage")}
-<h3>Coverage and fill quality per month</h3>
-{_frame_table(monthly.reset_index(), monthly_meta, "monthly-coverage", "month")}
-<h3>u* thresholds</h3>
-{_frame_table(result.ustar.reset_index(drop=True), ustar_meta, "ustar", "row")}
-{e0_html}{daytime_html}
-<h3>Inputs, versions and table hashes</h3>
-{_provenance(manifest)}
-</section>
-<section id="section-methods"><h2>Methods and settings</h2>
-{methods}
-<h3>Settings of this run</h3>
-<p>"(m)" in a note marks a published value recalled from memory, still to be checked against
-the paper.</p>
-<table id="settings"><thead><tr><th scope="col">Setting</th><th scope="col">Value</th>
-<th scope="col">Meaning and source</th></tr></thead><tbody>{settings}</tbody></table>
-<h3>References</h3>
-<ol id="references">{references}</ol>
+<section id="section-summary"><h2>Summary</h2>
+{summary}
+{_reading_notes(combined_used)}
 </section>
 <section id="section-warnings"><h2>Warnings</h2>{warning_html}</section>
-<section id="section-cautions"><h2>Cautions</h2>
-{"".join(f'<p class="caution">{_e(text)}</p>' for text in cautions)}
+<section id="section-figures"><h2>Figures</h2>{figure_html}</section>
+<section id="section-details"><h2>Detailed tables</h2>
+{"".join(details)}
+</section>
+<section id="section-methods"><h2>Methods and references</h2>
+{methods}
+<ol id="references">{references}</ol>
+</section>
+<section id="section-settings"><h2>Settings and their sources</h2>
+<p>Every setting of this run with its value, its meaning and its source. The last column says
+which values were recalled from memory and are not yet checked against the original paper.</p>
+{_settings_table(config)}
 </section>
 </main>
 </body>
@@ -1064,6 +764,11 @@ the paper.</p>
     # "<table" and "</table>" in the page are our own.
     return (page.replace("<table ", '<div class="scroll"><table ')
             .replace("</table>", "</table></div>"))
+
+
+def _span(written: Written) -> str:
+    index = written.timeseries.index
+    return f"{index[0]:%d %b %Y} – {index[-1]:%d %b %Y}"
 
 
 # ------------------------------------------------------------------------------ entry points
@@ -1097,39 +802,26 @@ def build_report(directory, out=None, *, progress=None) -> Path:
 
     Notes
     -----
-    The page embeds each figure as a base64 data URI, carries its CSS inline and
-    loads nothing from elsewhere. Every value from the folder is HTML-escaped.
-    Each annual value sits in a cell ``<td data-column="nee" data-year="2021"
-    data-decimals="1">`` whose text is the value rounded to `data-decimals`
-    places. PNG files are written without timestamps, so the same folder and
-    library versions give the same bytes.
+    Reads only the folder's tables and manifest; nothing is recomputed. The page
+    embeds each figure as a base64 data URI, carries its CSS inline and loads
+    nothing from elsewhere. Every value from the folder is HTML-escaped. Each
+    annual value sits in a cell ``<td data-column="nee" data-year="2021"
+    data-decimals="1">``; each summary number in a ``<span data-summary="nee"
+    data-year="2021" data-value="...">``. PNG files are written without
+    timestamps, so the same folder and library versions give the same bytes.
     """
-    drawing = _Drawing()
+    from .figures import _matplotlib
+
+    _matplotlib()  # fail before reading anything when the extra is missing
     directory = Path(directory)
-    manifest = read_manifest(directory)
-    result = load(directory)
+    written = read_written(directory)
     out = directory / "report" if out is None else Path(out)
-    interval = _interval_minutes(result.timeseries.index)
+    interval = interval_minutes(written.timeseries.index)
     tick = progress if progress is not None else (lambda: None)
-    painters = (
-        lambda: _figure_heatmaps(drawing, result, interval),
-        lambda: _figure_cumulative(drawing, result, interval),
-        lambda: _figure_monthly(drawing, result),
-        lambda: _figure_diurnal(drawing, result, interval),
-        lambda: _figure_night_respiration(drawing, result, interval),
-        lambda: _figure_ustar(drawing, result),
-        lambda: _figure_light_response(drawing, result),
-    )
-    figures = []
-    with drawing.mpl.rc_context():
-        drawing.mpl.rcdefaults()
-        drawing.mpl.rcParams.update(_RC)
-        for paint in painters:
-            figure = paint()
-            atomic_write_bytes(out / figure.name, figure.png)
-            figures.append(figure)
-            tick()
-    page = _page(manifest, result, directory, figures, interval)
+    figures = draw_figures(written, tick)
+    for figure in figures:
+        atomic_write_bytes(out / figure.name, figure.png)
+    page = _page(written, directory, figures, interval)
     path = out / "report.html"
     atomic_write_bytes(path, page.encode("utf-8"))
     tick()

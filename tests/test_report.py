@@ -1,11 +1,14 @@
-"""The report: figures and a self-contained page for a result folder (fluxpart report).
+"""The report: a self-contained page for a result folder (fluxpart report).
 
 One demo site-year is processed (20 bootstrap draws, to keep it quick), written and
-reported once per module; the tests read the page and figures back. The page's
-numbers are checked against annual.parquet read with pyarrow, the PNG files with
-matplotlib's own decoder, and the page's rendering with a real headless browser.
+reported once per module; a second folder is derived from it with the columns that
+newer runs write (95 % intervals, 1-sigma, clock check, window status, string fill
+labels, budget periods) and a third is cut to a partial year. The tests read the
+pages back: numbers against annual.parquet read with pyarrow, PNG files with
+matplotlib's own decoder, the order and rendering with a real headless browser.
 """
 
+import ast
 import base64
 import dataclasses
 import html
@@ -26,31 +29,117 @@ import fluxpart
 from fluxpart import demo
 from fluxpart.cli import main
 from fluxpart.errors import FluxpartError, InputFileError
+from fluxpart.figures import (
+    FIGURES,
+    Written,
+    cumulative_bands,
+    fill_category,
+    period_masks,
+    ustar_class_means,
+    window_status,
+)
 from fluxpart.manifest import CAUTION, read_manifest
-from fluxpart.report import FIGURES, _cumulative_bands, _ustar_class_means, build_report
+from fluxpart.report import build_report, read_written
 
 matplotlib_image = pytest.importorskip("matplotlib.image")
 
 HOSTILE_NAME = 'Quillmoor <script>alert(1)</script> & "Co" (fictional)'
 HOSTILE_WARNING = "2021 check <b>bold</b> & <img src=x onerror=alert(2)>"
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
+NEW_FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
 
 
 @pytest.fixture(scope="module")
-def folder(tmp_path_factory):
-    """A written demo result (hostile site name and warning) and its report page."""
+def processed():
+    """The demo site-year processed once (hostile site name and warning added)."""
     frame, _ = demo.site_year(seed=0)
     result = fluxpart.process(frame, demo.site(), fluxpart.Config(ustar_bootstrap_draws=20),
                               provenance={"demo": {"seed": 0, "variant": "c3"}})
     site = dataclasses.replace(result.site, name=HOSTILE_NAME)
-    result = dataclasses.replace(result, site=site,
-                                 warnings=(*result.warnings, HOSTILE_WARNING))
-    directory = tmp_path_factory.mktemp("result") / "demo-2021"
+    return dataclasses.replace(result, site=site, warnings=(*result.warnings, HOSTILE_WARNING))
+
+
+def _written_and_reported(result, directory):
     result.write(directory)
-    out = directory.parent / "page"
+    out = directory.parent / f"{directory.name}-page"
     page = build_report(directory, out)
     return {"directory": directory, "out": out, "page": page, "result": result,
             "text": page.read_text(encoding="utf-8")}
+
+
+@pytest.fixture(scope="module")
+def folder(processed, tmp_path_factory):
+    """The demo result as the pipeline writes it today, and its report page."""
+    return _written_and_reported(processed, tmp_path_factory.mktemp("result") / "demo-2021")
+
+
+_NEWER_COLUMN = re.compile(r".*_ci95_(low|high)|.*_sigma|period_(start|end)")
+
+
+@pytest.fixture(scope="module")
+def older(processed, tmp_path_factory):
+    """The result as older runs wrote it: no intervals, 1-sigma, status or clock; int codes."""
+    def drop(frame):
+        return frame.drop(columns=[c for c in frame.columns if _NEWER_COLUMN.fullmatch(c)])
+
+    series = processed.timeseries.copy()
+    codes = {"measured": 0, "A": 1, "B": 2, "C": 3, "unfilled": -1, "interpolated": 3}
+    quality = series["nee_fill_quality"]
+    if not pd.api.types.is_numeric_dtype(quality):
+        series["nee_fill_quality"] = quality.astype(object).map(codes).fillna(-1).astype(np.int8)
+    daytime = processed.parameters["daytime"].drop(columns=["status"], errors="ignore")
+    provenance = {k: v for k, v in processed.provenance.items() if k != "clock"}
+    result = dataclasses.replace(processed, annual=drop(processed.annual),
+                                 daily=drop(processed.daily), monthly=drop(processed.monthly),
+                                 timeseries=series, provenance=provenance,
+                                 parameters={**processed.parameters, "daytime": daytime})
+    return _written_and_reported(result, tmp_path_factory.mktemp("older") / "demo-2021")
+
+
+@pytest.fixture(scope="module")
+def newer(processed, tmp_path_factory):
+    """The result with every column newer runs add (kept where the run wrote it already)."""
+    annual = processed.annual.copy()
+    for flux in NEW_FLUXES:
+        if f"{flux}_ci95_low" not in annual.columns:
+            annual[f"{flux}_ci95_low"] = annual[flux] - 11.0
+            annual[f"{flux}_ci95_high"] = annual[flux] + 13.0
+    annual["period_start"] = pd.Timestamp("2021-01-01")
+    annual["period_end"] = pd.Timestamp("2021-12-31")
+    daily = processed.daily.copy()
+    if "nee_sigma" not in daily.columns:
+        daily = daily.assign(nee_sigma=0.3, gpp_nighttime_sigma=0.4)
+    monthly = processed.monthly.copy()
+    if "nee_sigma" not in monthly.columns:
+        monthly = monthly.assign(nee_sigma=4.0)
+    series = processed.timeseries.copy()
+    if pd.api.types.is_numeric_dtype(series["nee_fill_quality"]):
+        labels = np.array(["unfilled", "measured", "A", "B", "C"], dtype=object)
+        series["nee_fill_quality"] = pd.array(
+            labels[series["nee_fill_quality"].to_numpy().astype(int) + 1], dtype="string")
+    daytime = processed.parameters["daytime"].copy()
+    status = np.where(daytime["accepted"], "accepted",
+                      "rejected: " + daytime["reason"].astype(str)).astype(object)
+    status[3] = "replaced: no convergence, neighbour used"
+    daytime["status"] = status
+    provenance = {**processed.provenance,
+                  "clock": {"shift_minutes": -60.0, "verdict": "one hour behind"}}
+    result = dataclasses.replace(processed, annual=annual, daily=daily, monthly=monthly,
+                                 timeseries=series, provenance=provenance,
+                                 parameters={**processed.parameters, "daytime": daytime})
+    return _written_and_reported(result, tmp_path_factory.mktemp("newer") / "demo-2021")
+
+
+@pytest.fixture(scope="module")
+def partial(processed, tmp_path_factory):
+    """The written result cut to a record starting 1 March (a partial year)."""
+    keep = processed.timeseries.index >= pd.Timestamp("2021-03-01")
+    annual = processed.annual.assign(complete=False)
+    result = dataclasses.replace(
+        processed, timeseries=processed.timeseries[keep], annual=annual,
+        daily=processed.daily[processed.daily.index >= pd.Timestamp("2021-03-01")],
+        monthly=processed.monthly[processed.monthly.index >= pd.Timestamp("2021-03-01")])
+    return _written_and_reported(result, tmp_path_factory.mktemp("partial") / "demo-2021")
 
 
 class _Cells(HTMLParser):
@@ -168,10 +257,11 @@ def test_units_on_the_page_come_from_the_field_metadata(folder):
     rows = re.findall(r'<th scope="row"><code>([a-z0-9_]+)</code></th><td class="unit">([^<]*)'
                       r"</td>", folder["text"])
     page_units = {name: html.unescape(unit) for name, unit in rows}
-    assert page_units["nee"] == units["nee"] == "g C m-2"
+    # the metadata may hold the UDUNITS-2 form (g m-2, carbon named in the description)
+    assert page_units["nee"] == "g C m-2" and units["nee"] in ("g C m-2", "g m-2")
     assert page_units["ustar_threshold"] == units["ustar_threshold"] == "m s-1"
     for name, unit in page_units.items():
-        if name in units:
+        if name in units and units[name] not in ("g m-2", "t ha-1"):
             assert unit == (units[name] if units[name] != "1" else "–"), name
 
 
@@ -249,22 +339,38 @@ def test_page_carries_the_site_caution_and_settings(folder):
         assert entry["sha256"] in text
 
 
-def test_the_page_renders_in_a_headless_browser(folder, tmp_path):
-    """Chromium opens the page offline and paints a screenshot that is not blank."""
+def _chromium():
     browser = shutil.which("chromium") or ("/usr/bin/chromium"
                                            if Path("/usr/bin/chromium").exists() else None)
     if browser is None:
         pytest.skip("chromium is not installed (Debian: apt-get install chromium)")
-    shot = tmp_path / "page.png"
+    return browser
+
+
+def _offline_browser(browser, tmp_path, *arguments):
+    """Run headless Chromium with every host unresolvable and a dead proxy (no network)."""
     command = [browser, "--headless", "--no-sandbox", "--disable-gpu",
                "--disable-background-networking", "--disable-component-update",
                "--no-first-run", "--disable-sync", "--disable-quic",
-               f"--user-data-dir={tmp_path / 'profile'}", f"--screenshot={shot}",
-               "--window-size=1200,2000", folder["page"].resolve().as_uri()]
+               "--proxy-server=127.0.0.1:9", "--host-resolver-rules=MAP * ~NOTFOUND",
+               f"--user-data-dir={tmp_path / 'profile'}", *arguments]
     try:
-        subprocess.run(command, capture_output=True, timeout=90, check=False)
+        return subprocess.run(command, capture_output=True, timeout=120, check=False)
     except (OSError, subprocess.TimeoutExpired) as error:
         pytest.skip(f"chromium could not be run here: {error}")
+
+
+def test_the_page_renders_offline_in_a_headless_browser(folder, tmp_path):
+    """Chromium, with no network, paints the page and its DOM keeps the reader's order.
+
+    The rendered DOM (not our source text) must hold, in this order: the caution,
+    the summary, the warnings, the first figure, the first detailed table; and the
+    summary's NEE must equal annual.parquet.
+    """
+    browser = _chromium()
+    shot = tmp_path / "page.png"
+    _offline_browser(browser, tmp_path, f"--screenshot={shot}", "--window-size=1200,2000",
+                     folder["page"].resolve().as_uri())
     assert shot.exists(), "chromium wrote no screenshot"
     data = shot.read_bytes()
     assert data.startswith(PNG_SIGNATURE)
@@ -273,48 +379,235 @@ def test_the_page_renders_in_a_headless_browser(folder, tmp_path):
     _assert_not_blank(pixels, "screenshot")
     dark = (pixels[..., :3].mean(axis=-1) < 0.5).mean()
     assert dark > 0.005, "the screenshot shows almost no text or figure"
-
+    done = _offline_browser(browser, tmp_path, "--dump-dom", folder["page"].resolve().as_uri())
+    dom = done.stdout.decode("utf-8", "replace")
+    assert 'id="section-summary"' in dom, "chromium returned no DOM"
+    marks = [dom.index(m) for m in ('id="caution-top"', 'id="section-summary"',
+                                    'id="section-warnings"', "<figure", "<details",
+                                    'id="settings"')]
+    assert marks == sorted(marks), marks
+    assert dom.index("<img") < dom.index("<table", dom.index("<details"))
+    annual = pq.read_table(folder["directory"] / "annual.parquet").to_pandas().set_index("year")
+    shown = re.search(r'data-summary="nee" data-year="2021" data-decimals="1" '
+                      r'data-value="([^"]+)">([^<]+)<', dom)
+    assert float(shown.group(1)) == annual.loc[2021, "nee"]
+    assert float(shown.group(2).replace("−", "-")) == pytest.approx(annual.loc[2021, "nee"],
+                                                                   abs=0.05)
 
 def test_cumulative_band_follows_the_sum_of_independent_errors(folder):
     """Random-error band at year end = 1.96 sqrt(sum sigma^2), the u* band the scenario range."""
-    result = folder["result"]
-    sigma = np.full(len(result.timeseries), 0.8)
-    with_error = dataclasses.replace(result, timeseries=result.timeseries.assign(
-        nee_random_error=sigma))
-    curves, scenario_columns, has_random = _cumulative_bands(with_error, 30)
-    doy, cumulative, bands = curves[2021]
+    written = read_written(folder["directory"])
+    sigma = np.full(len(written.timeseries), 0.8)
+    written.tables["timeseries"] = written.timeseries.assign(nee_random_error=sigma)
+    curves, scenario_columns, has_random = cumulative_bands(written, 30)
+    times, cumulative, bands = curves[2021]
     assert has_random and scenario_columns
     # 1 µmol m-2 s-1 over 30 min = 1800 s x 12.011e-6 g C (IUPAC atomic weight of C);
     # the variance of a sum of independent errors is the sum of their variances
     # (common practice).
     per_record = 1800 * 12.011e-6
     expected = 1.96 * per_record * 0.8 * np.sqrt(len(sigma))
-    low, high, kind = bands[0]
-    assert kind == "random"
+    by_kind = {kind: (low, high) for low, high, kind in bands}
+    low, high = by_kind["random"]
     assert (high[-1] - cumulative[-1]) == pytest.approx(expected, rel=1e-12)
-    low, high, kind = bands[1]
-    annual = result.annual.loc[2021]
+    low, high = by_kind["ustar"]
+    annual = written.annual.loc[2021]
     totals = [annual[c] for c in scenario_columns] + [annual["nee"]]
-    assert kind == "ustar"
     assert low[-1] == pytest.approx(min(totals)) and high[-1] == pytest.approx(max(totals))
+    if "interval" in by_kind:  # newer runs write the 95 % interval of the annual NEE
+        low, high = by_kind["interval"]
+        assert low[-1] == pytest.approx(annual["nee_ci95_low"])
+        assert high[-1] == pytest.approx(annual["nee_ci95_high"])
     assert cumulative[-1] == pytest.approx(annual["nee"], abs=1e-6)
-    assert doy[0] == pytest.approx(15 / 1440) and 0 < doy[-1] < 365
+    assert times[0] == pd.Timestamp("2021-01-01 00:00")
 
 
 def test_ustar_class_means_match_pandas_quantile_classes(folder):
     """Night NEE by u* class equals the means over pandas.qcut classes of the same records."""
-    series = folder["result"].timeseries
-    stats = _ustar_class_means(series, 20)[2021]
-    usable = (series["is_night"] & series["rejection_reason"].isin([0, 5])
+    written = read_written(folder["directory"])
+    series = written.timeseries
+    stats = ustar_class_means(series, 20, period_masks(written))[2021]
+    usable = (series["is_night"] & series["rejection_reason"].isin(["kept", "low_ustar"])
               & series["nee"].notna() & series["ustar"].notna())
     night = series.loc[usable, ["ustar", "nee"]]
-    # Reference: pandas.qcut into 20 classes of equal count (pandas 3, general library).
+    # Reference: pandas.qcut into 20 classes of equal count (pandas, general library).
     classes = pd.qcut(night["ustar"], 20, labels=False)
     reference = night.groupby(classes)["nee"].mean()
     assert len(stats) == 20
     assert np.allclose(stats["nee"].to_numpy(), reference.to_numpy(), rtol=0, atol=1e-9)
     assert np.all(np.diff(stats["ustar"].to_numpy()) > 0)
 
+
+def _summary(text):
+    """data-summary spans: (key, year) -> (data-value as float or None, printed text)."""
+    out = {}
+    for key, year, value, printed in re.findall(
+            r'data-summary="([^"]+)" data-year="([^"]+)"(?: data-decimals="\d+")?'
+            r'(?: data-value="([^"]*)")?>([^<]*)<', text):
+        out[(key, int(year))] = (float(value) if value not in ("", None) else None,
+                                 html.unescape(printed).replace("−", "-"))
+    return out
+
+
+def test_page_order_is_caution_summary_warnings_figures_details_settings(folder):
+    """A reader meets the caution, the summary, the warnings, then figures, then tables."""
+    text = folder["text"]
+    marks = [text.index(m) for m in ('id="caution-top"', 'id="section-summary"',
+                                     'id="section-warnings"', 'id="section-figures"',
+                                     "<figure", "<details", 'id="section-settings"')]
+    assert marks == sorted(marks), marks
+    # every detailed table is folded; the first table of the page after the summary
+    # card's own comes after the last figure
+    first_details = text.index("<details")
+    assert text.rindex("</figure>") < first_details
+    assert text.index('id="annual-budget"') > first_details
+    assert text.index(html.escape(HOSTILE_WARNING)) < text.index('id="section-figures"')
+    assert text.count("<figure") == len(FIGURES)
+
+
+@pytest.mark.parametrize("which", ["folder", "older", "newer"])
+def test_summary_numbers_equal_the_annual_table(which, request):
+    """Summary spans carry the annual.parquet values exactly and print them rounded."""
+    written = request.getfixturevalue(which)
+    # Reference: annual.parquet read with pyarrow, not through fluxpart.
+    annual = pq.read_table(written["directory"] / "annual.parquet").to_pandas().set_index("year")
+    text = written["text"]
+    shown = _summary(text)
+    columns = ["nee", "ustar_threshold", "net_uptake_t_co2_per_ha", *NEW_FLUXES[1:]]
+    has_interval = "nee_ci95_low" in annual.columns
+    if has_interval:
+        columns += [f"{flux}_ci95_{end}" for flux in NEW_FLUXES for end in ("low", "high")]
+    else:
+        columns += ["nee_uncertainty_total", "net_uptake_t_co2_per_ha_uncertainty",
+                    *(f"{flux}_uncertainty_total" for flux in NEW_FLUXES[1:])]
+    for column in columns:
+        value, printed = shown[(column, 2021)]
+        assert value == annual.loc[2021, column], column
+        decimals = len(printed.split(".")[1]) if "." in printed else 0
+        assert abs(float(printed) - annual.loc[2021, column]) <= 0.5 * 10.0 ** -decimals + 1e-9
+    filled = shown[("share_gap_filled_percent", 2021)][0]
+    assert filled == pytest.approx(100 * (1 - annual.loc[2021, "share_measured"]), abs=1e-9)
+    if "methods_agree" in annual.columns:
+        assert shown[("methods_agree", 2021)][0] == int(annual.loc[2021, "methods_agree"])
+    # without a 95 % interval the page says what its ± is instead
+    assert ('id="note-combined"' in text) == (not has_interval)
+    assert ("no 95 % interval" in text) == (not has_interval)
+
+
+def test_an_older_folder_says_what_it_lacks(older):
+    """Without the clock check, 1-sigma columns or window status the page says so."""
+    text = older["text"]
+    assert "no clock check in this result folder" in text
+    assert "the run wrote no daily 1-sigma columns" in text
+    assert "the run wrote no monthly 1-sigma" in text
+
+
+def test_newer_columns_are_shown_where_present(newer):
+    """95 % intervals, clock check, 1-sigma bands and window status reach the page."""
+    text = newer["text"]
+    annual = pq.read_table(newer["directory"] / "annual.parquet").to_pandas().set_index("year")
+    shown = _summary(text)
+    for flux in NEW_FLUXES:
+        assert shown[(f"{flux}_ci95_low", 2021)][0] == annual.loc[2021, f"{flux}_ci95_low"]
+        assert shown[(f"{flux}_ci95_high", 2021)][0] == annual.loc[2021, f"{flux}_ci95_high"]
+    # t CO2 ha-1 of uptake = -g C m-2 x 44.009/12.011 x 1e4 m2 ha-1 x 1e-6 t g-1
+    # (IUPAC conventional atomic weights); the NEE interval's high end is the low uptake
+    low = shown[("uptake_ci95_low", 2021)][0]
+    assert low == pytest.approx(-annual.loc[2021, "nee_ci95_high"] * 44.009 / 12.011 * 0.01)
+    assert 'id="note-combined"' not in text
+    assert "estimated shift -60 min; one hour behind" in text
+    assert "±1.96 times the daily 1-sigma written by the run" in text
+    assert "±1.96 times the monthly 1-sigma" in text
+    assert "1 replaced" in text
+    assert "no daily 1-sigma" not in text
+
+
+def test_partial_year_titles_name_the_first_record(partial):
+    """A record starting 1 March is not titled "since 1 January" and is called partial."""
+    text = partial["text"]
+    assert "Cumulative NEE since 1 March 2021" in text
+    assert "since 1 January" not in text
+    assert "partial period" in text
+    assert "01 Mar 2021 – 31 Dec 2021" in text
+
+
+def test_a_budget_year_spans_two_calendar_years():
+    """period_start/period_end of the annual table decide which records a period holds."""
+    index = pd.date_range("2021-07-01", "2022-06-30 23:30", freq="30min")
+    series = pd.DataFrame({"nee_filled": 1.0}, index=index)
+    annual = pd.DataFrame({"nee": [1.0], "period_start": [pd.Timestamp("2021-07-01")],
+                           "period_end": [pd.Timestamp("2022-06-30")]},
+                          index=pd.Index([2021], name="year"))
+    written = Written(manifest={}, tables={"timeseries": series, "annual": annual})
+    label, first, last, mask, partial = period_masks(written)[2021]
+    assert mask.all() and first == index[0] and last == index[-1]
+    assert not partial  # a full budget year even though it is not a calendar year
+
+
+def test_fill_quality_codes_and_labels_agree():
+    """Integer codes (0 measured, 1-3 A-C, -1 unfilled) and string labels read the same."""
+    codes = fill_category(np.array([0, 1, 2, 3, -1], dtype=np.int8))
+    labels = fill_category(pd.array(["measured", "A", "B", "C", "unfilled"], dtype="string"))
+    assert list(codes) == list(labels) == ["measured", "A", "B", "C", "unfilled"]
+    assert list(fill_category(["interpolated", None])) == ["interpolated", "unfilled"]
+    categorical = pd.Categorical(["A", "measured"], categories=["measured", "A", "unfilled"])
+    assert list(fill_category(categorical)) == ["A", "measured"]
+    assert list(fill_category(pd.Categorical([1, 0]))) == ["A", "measured"]
+
+
+def test_window_status_reads_strings_and_flags():
+    """Status strings split into state and reason; an accepted window at a bound is marked."""
+    parameters = pd.DataFrame({
+        "accepted": [True, True, False, True],
+        "reason": ["ok", "beta0 at upper bound", "too few points", "ok"],
+    })
+    states = window_status(parameters)
+    assert list(states["state"]) == ["accepted", "at bound", "rejected", "accepted"]
+    assert states.loc[2, "why"] == "too few points" and states.loc[0, "why"] == ""
+    parameters["status"] = ["accepted", "accepted", "rejected: too few points",
+                            "replaced: no convergence, neighbour used"]
+    states = window_status(parameters)
+    assert list(states["state"]) == ["accepted", "at bound", "rejected", "replaced"]
+    assert states.loc[3, "why"] == "no convergence, neighbour used"
+
+
+def test_unchecked_values_are_marked_once_in_the_settings_table(folder):
+    """No "(m)" in the page; the settings table marks exactly the recalled values."""
+    text = folder["text"]
+    assert "(m)" not in text
+    doc = fluxpart.Config.__doc__
+    manifest = read_manifest(folder["directory"])
+    for key in manifest["config"]:
+        # the paragraph documenting `key` in the Config docstring (numpydoc attributes)
+        block = re.search(rf"\n\s*(?:[a-z0-9_]+, )*{key}(?:, [a-z0-9_]+)* : .*?(?=\n\s*[a-z0-9_,"
+                          r" ]+ : |\Z)", doc, re.S)
+        check = re.search(rf'data-check="{key}">([^<]*)<', text).group(1)
+        recalled = block is not None and "(m)" in block.group(0)
+        assert check.startswith("recalled") == recalled, key
+    assert text.index('id="settings"') > text.rindex("<details")
+
+
+def test_report_modules_import_no_pipeline_or_method_module():
+    """The report reads the folder only: its modules import no pipeline or method module."""
+    allowed = {"config", "constants", "errors", "figures", "manifest", "store", "units",
+               "responses", "progress", "resultdir", "fingerprint"}
+    root = Path(fluxpart.__file__).parent
+    for name in ("report.py", "figures.py"):
+        tree = ast.parse((root / name).read_text(encoding="utf-8"))
+        for node in ast.walk(tree):
+            if isinstance(node, ast.ImportFrom) and node.level == 1:
+                assert (node.module or "").split(".")[0] in allowed, (name, node.module)
+    code = ("import sys, fluxpart.report, fluxpart.figures; print(sorted(m for m in sys.modules "
+            "if m.startswith('fluxpart.')))")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          timeout=60, check=True)
+    loaded = {m.removeprefix("fluxpart.") for m in eval(done.stdout)}
+    assert loaded <= allowed | {"report", "_validate"}, loaded
+
+
+def test_page_is_light(folder):
+    """One self-contained file well under 1 MB for a site-year (figures as palette PNG)."""
+    assert folder["page"].stat().st_size < 1_000_000
 
 def test_missing_matplotlib_names_the_report_extra(folder, monkeypatch, tmp_path):
     """Without matplotlib the report stops with one error naming the install command."""

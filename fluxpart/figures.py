@@ -1,0 +1,1141 @@
+"""Figures of the report page, drawn only from what a result folder holds.
+
+Each painter takes a :class:`Written` (the tables and manifest of one result
+folder, read by :mod:`fluxpart.report`) and returns a :class:`Figure`: a
+compressed PNG, a title and a one-sentence caption that says what to look for.
+Nothing here re-runs a method: every curve, band and mark is a column or a
+parameter that the run wrote. Columns that older result folders lack (daily
+1-sigma columns, the clock check, per-window status strings) are drawn when
+present and named as absent otherwise.
+
+matplotlib (the ``report`` extra) is used on the Agg canvas without pyplot and
+without a layout engine: every figure has fixed margins, which keeps drawing
+fast (no tight or constrained layout passes). Figures are written as 8-bit
+palette PNG files without timestamp or software tag, so the same folder gives
+the same bytes.
+
+Colour scales: NEE is drawn on a diverging scale (dark blue strong uptake,
+near white zero, dark red-brown strong release) and every missing cell is a
+grey hatch that no value maps to. Lines follow the Okabe & Ito (2008)
+colour-blind-safe palette with distinct line styles, so they also read in grey.
+"""
+
+from __future__ import annotations
+
+import io
+import re
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from .errors import FluxpartError
+from .responses import LASSLOP_VPD0_HPA, light_response, lloyd_taylor
+from .units import CARBON_UNIT, FLUX_UNIT, flux_to_carbon
+
+__all__ = ["FIGURES", "Figure", "Written", "draw_figures", "fill_category", "period_masks"]
+
+#: File names of the figures, in page order.
+FIGURES = (
+    "daily_fluxes.png",
+    "cumulative_nee.png",
+    "fill_quality.png",
+    "heatmaps.png",
+    "clock_check.png",
+    "monthly_gpp_reco.png",
+    "diurnal_by_month.png",
+    "night_respiration.png",
+    "ustar_threshold.png",
+    "light_response.png",
+)
+
+_DPI = 100
+_FLUX_UNIT = FLUX_UNIT
+_CARBON_UNIT = CARBON_UNIT
+_MONTHS = ("January", "February", "March", "April", "May", "June", "July", "August",
+           "September", "October", "November", "December")
+
+# Okabe & Ito (2008) colour-blind-safe palette.
+_GREEN = "#009E73"
+_VERMILLION = "#D55E00"
+_BLUE = "#0072B2"
+_ORANGE = "#E69F00"
+_SKY = "#56B4E9"
+_PURPLE = "#CC79A7"
+_BLACK = "#000000"
+_MISSING_FACE = "#bdbdbd"
+_MISSING_HATCH = "#7a7a7a"
+
+#: Fill-quality categories in drawing order with their colours (Okabe & Ito 2008).
+FILL_CATEGORIES = (
+    ("measured", "#e8e8e8"),
+    ("A", _SKY),
+    ("B", _ORANGE),
+    ("C", _VERMILLION),
+    ("interpolated", _PURPLE),
+    ("unfilled", "#000000"),
+)
+_QUALITY_CODES = {0: "measured", 1: "A", 2: "B", 3: "C", -1: "unfilled", 4: "interpolated"}
+
+_RC = {
+    "font.family": "DejaVu Sans",
+    "font.size": 9.0,
+    "axes.titlesize": 9.5,
+    "axes.labelsize": 9.0,
+    "axes.grid": True,
+    "grid.color": "#d6d6d6",
+    "grid.linewidth": 0.5,
+    "legend.fontsize": 8.0,
+    "legend.frameon": False,
+    "image.interpolation": "nearest",
+    "hatch.linewidth": 0.6,
+}
+
+
+@dataclass(frozen=True)
+class Figure:
+    """One drawn figure: file name, PNG bytes, title and caption (plain text)."""
+
+    name: str
+    png: bytes
+    title: str
+    caption: str
+
+
+@dataclass
+class Written:
+    """What a result folder holds, as the report reads it (no method is re-run).
+
+    Attributes
+    ----------
+    manifest : dict
+        Parsed ``manifest.json``.
+    tables : dict of str to pandas.DataFrame
+        Every table the manifest lists, by its manifest name.
+    config : dict
+        The ``config`` mapping of the manifest (settings of the run).
+    """
+
+    manifest: dict
+    tables: dict
+    config: dict = field(default_factory=dict)
+
+    def table(self, name) -> pd.DataFrame:
+        return self.tables.get(name, pd.DataFrame())
+
+    @property
+    def timeseries(self) -> pd.DataFrame:
+        return self.tables["timeseries"]
+
+    @property
+    def annual(self) -> pd.DataFrame:
+        return self.tables["annual"]
+
+    def setting(self, name, default=None):
+        return self.config.get(name, default)
+
+
+# --------------------------------------------------------------------------- helpers
+
+
+def _matplotlib():
+    """Import matplotlib's object-oriented parts, or explain how to install them."""
+    try:
+        import matplotlib
+        from matplotlib import colors, dates
+        from matplotlib.backends.backend_agg import FigureCanvasAgg
+        from matplotlib.figure import Figure as MplFigure
+    except ImportError:
+        raise FluxpartError(
+            "the report needs matplotlib, which is not installed; install the report extra "
+            'with: pip install "fluxpart[report]"') from None
+    return matplotlib, colors, dates, FigureCanvasAgg, MplFigure
+
+
+class Drawing:
+    """matplotlib modules plus the helpers every figure uses."""
+
+    def __init__(self):
+        self.mpl, self.colors, self.dates, self._canvas, self._figure = _matplotlib()
+
+    def figure(self, width, height, **margins):
+        figure = self._figure(figsize=(width, height), dpi=_DPI)
+        self._canvas(figure)
+        options = {"left": 0.08, "right": 0.97, "bottom": 0.1, "top": 0.9}
+        options.update(margins)
+        figure.subplots_adjust(**options)
+        return figure
+
+    def png(self, figure) -> bytes:
+        """Render to an 8-bit palette PNG (no text chunks): small, deterministic bytes."""
+        from PIL import Image
+
+        canvas = figure.canvas
+        canvas.draw()
+        image = Image.frombuffer("RGBA", canvas.get_width_height(), canvas.buffer_rgba(),
+                                 "raw", "RGBA", 0, 1).convert("RGB")
+        palette = image.quantize(colors=256, method=Image.Quantize.MEDIANCUT,
+                                 dither=Image.Dither.NONE)
+        buffer = io.BytesIO()
+        palette.save(buffer, format="PNG", optimize=True)
+        return buffer.getvalue()
+
+    def nee_colormap(self):
+        """Diverging NEE scale: dark blue uptake, near-white zero, dark red-brown release."""
+        scale = self.colors.LinearSegmentedColormap.from_list(
+            "fluxpart_nee", ["#08306b", "#2171b5", "#9ecae1", "#f4f4f4", "#fdae6b", "#d94801",
+                             "#67000d"])
+        return scale.with_extremes(bad=(0.0, 0.0, 0.0, 0.0))
+
+    def sequential(self, name):
+        return self.mpl.colormaps[name].with_extremes(bad=(0.0, 0.0, 0.0, 0.0))
+
+    def nee_norm(self, *arrays):
+        values = np.concatenate([np.asarray(a, dtype=float).ravel() for a in arrays])
+        values = values[np.isfinite(values)]
+        if values.size == 0:
+            return self.colors.TwoSlopeNorm(vcenter=0.0, vmin=-1.0, vmax=1.0)
+        low = min(float(np.percentile(values, 0.5)), -1e-3)
+        high = max(float(np.percentile(values, 99.5)), 1e-3)
+        return self.colors.TwoSlopeNorm(vcenter=0.0, vmin=low, vmax=high)
+
+    def date_axis(self, axis, ticks=8):
+        locator = self.dates.AutoDateLocator(minticks=3, maxticks=ticks)
+        axis.xaxis.set_major_locator(locator)
+        axis.xaxis.set_major_formatter(self.dates.ConciseDateFormatter(locator))
+
+
+def _missing_background(axis):
+    """Grey hatch behind an image: cells without a value never look like data."""
+    axis.set_facecolor(_MISSING_FACE)
+    axis.patch.set_hatch("////")
+    axis.patch.set_edgecolor(_MISSING_HATCH)
+    axis.grid(False)
+
+
+def _no_data(axis, text):
+    axis.text(0.5, 0.5, text, transform=axis.transAxes, ha="center", va="center",
+              fontsize=10, color="#444444", wrap=True)
+    axis.set_xticks([])
+    axis.set_yticks([])
+    axis.grid(False)
+
+
+def _panels(figure, count, ncols, **options):
+    """A grid of `count` axes (the spare ones hidden), returned as a flat list."""
+    ncols = max(1, min(ncols, count))
+    nrows = -(-count // ncols)
+    grid = figure.subplots(nrows, ncols, squeeze=False, **options).ravel()
+    for axis in grid[count:]:
+        axis.set_visible(False)
+    return list(grid[:count])
+
+
+def interval_minutes(index: pd.DatetimeIndex) -> int:
+    """Median spacing of the time axis [min] (30 when there is a single record)."""
+    seconds = np.diff(index.to_numpy().astype("datetime64[s]").astype(np.int64))
+    return int(np.median(seconds) // 60) if seconds.size else 30
+
+
+def carbon_per_record(interval: int) -> float:
+    """g C m-2 per record of 1 µmol CO2 m-2 s-1 over `interval` minutes.
+
+    The conversion is the shared one of :func:`fluxpart.units.flux_to_carbon`.
+    """
+    return float(flux_to_carbon(1.0, interval))
+
+
+def _day_grid(index: pd.DatetimeIndex, values, interval: int):
+    """Values on a (day, time of day) grid; returns (grid, first day, number of days)."""
+    days = index.normalize()
+    first = days[0]
+    day_position = ((days - first) / pd.Timedelta(days=1)).to_numpy().astype(int)
+    slot = ((index - days) / pd.Timedelta(minutes=interval)).to_numpy().astype(int)
+    per_day = max(1440 // interval, 1)
+    n_days = int(day_position[-1]) + 1
+    grid = np.full((n_days, per_day), np.nan)
+    grid[day_position, np.clip(slot, 0, per_day - 1)] = np.asarray(values, dtype=float)
+    return grid, first, n_days
+
+
+def _hour_of_day(index: pd.DatetimeIndex, interval: int) -> np.ndarray:
+    """Hour of the middle of each interval [h]."""
+    return ((index - index.normalize()) / pd.Timedelta(hours=1)).to_numpy() + interval / 120.0
+
+
+def _date_span(start: pd.Timestamp, end: pd.Timestamp) -> str:
+    return f"{start.day} {_MONTHS[start.month - 1]} {start.year} – {end.day} " \
+           f"{_MONTHS[end.month - 1]} {end.year}"
+
+
+def period_masks(written: Written) -> dict:
+    """Per annual row: (label, first record, last record, record mask, partial?).
+
+    The budget period of a row is ``period_start``..``period_end`` of the annual
+    table where the run wrote them (budget years), else the calendar year. A
+    period is partial when the table says it is not ``complete`` or, without
+    that column, when its records do not reach both ends of the period.
+    """
+    index = written.timeseries.index
+    annual = written.annual
+    out = {}
+    has_period = {"period_start", "period_end"} <= set(annual.columns)
+    starts = (set(pd.to_datetime(annual["period_start"]).dropna()) if has_period else set())
+    step = pd.Timedelta(minutes=interval_minutes(index))
+    for label in annual.index:
+        row = annual.loc[label]
+        if has_period and pd.notna(row["period_start"]) and pd.notna(row["period_end"]):
+            start = pd.Timestamp(row["period_start"])
+            end = pd.Timestamp(row["period_end"])
+            if end == end.normalize() and end not in starts:
+                end_exclusive = end + pd.Timedelta(days=1)    # a last day, inclusive
+            elif end == end.normalize():
+                end_exclusive = end                           # the next period's start
+            else:
+                end_exclusive = end + pd.Timedelta(seconds=1)  # a last record stamp
+            mask = (index >= start) & (index < end_exclusive)
+            bounds = (start, end_exclusive)
+        else:
+            mask = np.asarray(index.year == int(label))
+            bounds = (pd.Timestamp(year=int(label), month=1, day=1),
+                      pd.Timestamp(year=int(label) + 1, month=1, day=1))
+        mask = np.asarray(mask, dtype=bool)
+        if not mask.any():
+            continue
+        first, last = index[mask][0], index[mask][-1]
+        if "complete" in annual.columns and pd.notna(row["complete"]):
+            partial = not bool(row["complete"])
+        else:
+            partial = first > bounds[0] or last + step < bounds[1]
+        out[label] = (str(label), first, last, mask, partial)
+    return out
+
+
+def fill_category(values) -> np.ndarray:
+    """Fill-quality labels from int codes (0, 1, 2, 3, -1) or strings ("A", "measured", ...)."""
+    series = pd.Series(values)
+    if isinstance(series.dtype, pd.CategoricalDtype):
+        series = series.astype(series.cat.categories.dtype)
+    if pd.api.types.is_numeric_dtype(series) and not pd.api.types.is_bool_dtype(series):
+        codes = series.to_numpy(dtype=float)
+        out = np.full(codes.shape, "unfilled", dtype=object)
+        for code, name in _QUALITY_CODES.items():
+            out[codes == code] = name
+        return out
+    text = series.astype("string").str.strip().fillna("unfilled").to_numpy(dtype=object)
+    known = {name.lower(): name for name, _ in FILL_CATEGORIES}
+    return np.array([known.get(str(v).lower(), str(v)) for v in text], dtype=object)
+
+
+def _year_colours(drawing, labels):
+    colormap = drawing.mpl.colormaps["cividis"]
+    positions = np.linspace(0.0, 0.8, len(labels)) if len(labels) > 1 else [0.0]
+    return {label: colormap(p) for label, p in zip(labels, positions, strict=True)}
+
+
+def _span_text(written: Written) -> str:
+    periods = period_masks(written)
+    if not periods:
+        return ""
+    first = min(p[1] for p in periods.values())
+    last = max(p[2] for p in periods.values())
+    return _date_span(first, last)
+
+
+def _sigma_column(frame: pd.DataFrame, flux: str):
+    for name in (f"{flux}_sigma", f"{flux}_uncertainty_sigma", f"{flux}_sd"):
+        if name in frame.columns:
+            return name
+    return None
+
+
+def _temperature_column(series: pd.DataFrame, driver: str) -> str:
+    for name in (f"{driver}_filled", driver):
+        if name in series.columns:
+            return name
+    raise FluxpartError(f"the timeseries table has no column {driver!r} or {driver + '_filled'!r}"
+                        " (the respiration driver of the run)")
+
+
+def _temperature_label(column: str) -> str:
+    return "Soil temperature" if column.startswith("tsoil") else "Air temperature"
+
+
+# --------------------------------------------------------------------------- figures
+
+
+def figure_daily(drawing, written, interval) -> Figure:
+    daily = written.table("daily")
+    figure = drawing.figure(10.0, 7.2, left=0.08, right=0.98, top=0.93, bottom=0.07,
+                            hspace=0.28)
+    axes = figure.subplots(3, 1, sharex=True)
+    dates = pd.DatetimeIndex(daily.index) + pd.Timedelta(hours=12) if len(daily) else []
+    banded = []
+    panels = [
+        (axes[0], [("nee", "NEE", _BLACK, "-")], "Daily NEE (below zero: net uptake)"),
+        (axes[1], [("gpp_nighttime", "GPP, nighttime method", _GREEN, "-"),
+                   ("gpp_daytime", "GPP, daytime method", _BLUE, "--")], "Daily GPP"),
+        (axes[2], [("reco_nighttime", "Reco, nighttime method", _VERMILLION, "-"),
+                   ("reco_daytime", "Reco, daytime method", _ORANGE, "--")], "Daily Reco"),
+    ]
+    for axis, lines, title in panels:
+        drawn = False
+        for column, label, colour, style in lines:
+            if column not in daily.columns:
+                continue
+            values = daily[column].to_numpy(dtype=float)
+            sigma = _sigma_column(daily, column)
+            if sigma is not None:
+                spread = 1.96 * daily[sigma].to_numpy(dtype=float)
+                axis.fill_between(dates, values - spread, values + spread, color=colour,
+                                  alpha=0.25, linewidth=0, label=f"{label}: 95 % band")
+                banded.append(column)
+            axis.plot(dates, values, color=colour, linestyle=style, linewidth=1.1, label=label)
+            drawn = True
+        if not drawn:
+            _no_data(axis, "not in the daily table")
+            continue
+        axis.axhline(0.0, color="#777777", linewidth=0.6)
+        axis.set_title(title, loc="left")
+        axis.set_ylabel(f"[{_CARBON_UNIT} d-1]")
+        axis.legend(loc="upper left", ncols=2)
+    if len(daily):
+        drawing.date_axis(axes[-1], ticks=13)
+    figure.suptitle(f"Daily sums, {_span_text(written)}", x=0.08, ha="left", fontsize=10.5)
+    band_text = ("shaded bands are ±1.96 times the daily 1-sigma written by the run"
+                 if banded else "the run wrote no daily 1-sigma columns, so no bands are drawn")
+    caption = ("Look for the season of net uptake (NEE below zero) and for days where the two "
+               f"partitioning methods part ways; {band_text}.")
+    return Figure("daily_fluxes.png", drawing.png(figure), "Daily NEE, GPP and Reco", caption)
+
+
+def cumulative_bands(written, interval):
+    """Per period: (dates, cumulative NEE [g C m-2], bands: list of (low, high, kind)).
+
+    The random band is 1.96 sqrt(cumulative sum of sigma^2) of the per-record random
+    error (records taken as independent); the u* band spreads the range of the
+    annual u* scenario sums linearly over the period; the interval band does the
+    same with the annual ``nee_ci95_low``/``nee_ci95_high`` where written.
+    """
+    series = written.timeseries
+    annual = written.annual
+    per_record = carbon_per_record(interval)
+    scenario_columns = [c for c in annual.columns if re.fullmatch(r"nee_ustar_p[\d.]+", c)]
+    has_random = "nee_random_error" in series.columns
+    has_interval = {"nee_ci95_low", "nee_ci95_high"} <= set(annual.columns)
+    out = {}
+    for label, (_, _, _, mask, _) in period_masks(written).items():
+        carbon = series["nee_filled"].to_numpy(dtype=float)[mask] * per_record
+        cumulative = np.nancumsum(carbon)
+        fraction = np.arange(1, mask.sum() + 1) / float(mask.sum())
+        row = annual.loc[label]
+        central = float(row["nee"])
+        bands = []
+        if has_interval and np.isfinite([row["nee_ci95_low"], row["nee_ci95_high"]]).all():
+            bands.append((cumulative + (float(row["nee_ci95_low"]) - central) * fraction,
+                          cumulative + (float(row["nee_ci95_high"]) - central) * fraction,
+                          "interval"))
+        if has_random:
+            sigma = series["nee_random_error"].to_numpy(dtype=float)[mask] * per_record
+            spread = 1.96 * np.sqrt(np.nancumsum(sigma**2))
+            bands.append((cumulative - spread, cumulative + spread, "random"))
+        if scenario_columns:
+            totals = np.array([row[c] for c in scenario_columns] + [central], dtype=float)
+            totals = totals[np.isfinite(totals)]
+            if totals.size:
+                bands.append((cumulative + (totals.min() - central) * fraction,
+                              cumulative + (totals.max() - central) * fraction, "ustar"))
+        out[label] = (series.index[mask], cumulative, bands)
+    return out, scenario_columns, has_random
+
+
+_BAND_STYLE = {
+    "interval": ("95 % interval of the annual NEE (written), spread over time", 0.18, None),
+    "random": ("95 % random-error band", 0.3, None),
+    "ustar": ("u* threshold scenario range", 0.12, "////"),
+}
+
+
+def figure_cumulative(drawing, written, interval) -> Figure:
+    curves, scenario_columns, has_random = cumulative_bands(written, interval)
+    periods = period_masks(written)
+    figure = drawing.figure(10.0, 4.6, left=0.08, right=0.98, top=0.9, bottom=0.12)
+    axis = figure.subplots()
+    colours = _year_colours(drawing, list(curves))
+    kinds = set()
+    for label, (times, cumulative, bands) in curves.items():
+        colour = colours[label]
+        if any(kind == "interval" for _, _, kind in bands):
+            # the written 95 % interval already holds the random and u* parts
+            bands = [band for band in bands if band[2] == "interval"]
+        for low, high, kind in bands:
+            text, alpha, hatch = _BAND_STYLE[kind]
+            axis.fill_between(times, low, high, color=colour, alpha=alpha, hatch=hatch,
+                              linewidth=0.0, label=f"{label}: {text}")
+            kinds.add(kind)
+        axis.plot(times, cumulative, color=colour, linewidth=1.8,
+                  label=f"{label}: gap-filled NEE")
+    axis.axhline(0.0, color="#555555", linewidth=0.8)
+    drawing.date_axis(axis, ticks=13)
+    axis.set_ylabel(f"Cumulative NEE [{_CARBON_UNIT}]")
+    starts = sorted({p[1] for p in periods.values()})
+    since = ""
+    if len(periods) == 1:
+        label, first, last, _, partial = next(iter(periods.values()))
+        since = f"since {first.day} {_MONTHS[first.month - 1]} {first.year}"
+        title = (f"Cumulative NEE {since} (below zero: net uptake)"
+                 + (f"; partial period, ends {last:%d %b %Y}" if partial else ""))
+    else:
+        title = ("Cumulative NEE per budget period, each from its own first record "
+                 f"({', '.join(f'{s:%d %b %Y}' for s in starts)})")
+    axis.set_title(title, loc="left")
+    axis.legend(loc="lower left", fontsize=7.5)
+    if "interval" in kinds:
+        what = "the written 95 % interval of the annual NEE (shaded, drawn growing with time)"
+    elif has_random:
+        what = "the 95 % random-error band and the u* scenario range (hatched)"
+    elif scenario_columns:
+        what = "the u* scenario range (hatched)"
+    else:
+        what = "no band: the run wrote neither an interval nor u* scenarios"
+    caption = (f"Read the end of each curve as the period's net balance in {_CARBON_UNIT} and "
+               f"compare its distance from zero with {what}.")
+    heading = ("Cumulative NEE " + since if len(periods) == 1
+               else "Cumulative NEE per budget period")
+    return Figure("cumulative_nee.png", drawing.png(figure), heading, caption)
+
+
+def _gap_runs(categories: np.ndarray, index: pd.DatetimeIndex, interval: int):
+    """Longest run of records without a measurement: (length [days], first stamp) or None."""
+    missing = np.asarray(categories != "measured", dtype=np.int8)
+    if not missing.any():
+        return None
+    edges = np.diff(np.concatenate([[0], missing, [0]]))
+    starts = np.flatnonzero(edges == 1)
+    ends = np.flatnonzero(edges == -1)
+    longest = int(np.argmax(ends - starts))
+    return (ends[longest] - starts[longest]) * interval / 1440.0, index[starts[longest]]
+
+
+def figure_fill_quality(drawing, written, interval) -> Figure:
+    series = written.timeseries
+    names = [name for name, _ in FILL_CATEGORIES]
+    colours = dict(FILL_CATEGORIES)
+    if "nee_fill_quality" in series.columns:
+        categories = fill_category(series["nee_fill_quality"].to_numpy())
+    else:
+        categories = np.where(np.isfinite(series["nee_measured"]), "measured",
+                              np.where(np.isfinite(series["nee_filled"]), "C", "unfilled"))
+    extra = sorted(set(categories) - set(names))
+    names += extra
+    for position, name in enumerate(extra):
+        colours[name] = ("#F0E442", "#999933", "#882255")[position % 3]
+    present = [name for name in names if (categories == name).any()]
+    codes = np.array([names.index(c) for c in categories], dtype=float)
+    figure = drawing.figure(10.0, 6.4, left=0.08, right=0.98, top=0.93, bottom=0.08,
+                            hspace=0.12)
+    top, bottom = figure.subplots(2, 1, sharex=True, height_ratios=[2.2, 1.0])
+    grid, first, n_days = _day_grid(series.index, codes, interval)
+    start = drawing.dates.date2num(first.to_pydatetime())
+    colormap = drawing.colors.ListedColormap([colours[n] for n in names]).with_extremes(
+        bad=(0.0, 0.0, 0.0, 0.0))
+    norm = drawing.colors.BoundaryNorm(np.arange(len(names) + 1) - 0.5, len(names))
+    _missing_background(top)
+    top.imshow(grid.T, origin="lower", aspect="auto", extent=(start, start + n_days, 0.0, 24.0),
+               cmap=colormap, norm=norm, interpolation="nearest")
+    top.set_ylabel("Time of day [h]")
+    top.set_yticks([0, 6, 12, 18, 24])
+    top.set_title("NEE fill quality of every record (grey hatch: no record in the file)",
+                  loc="left")
+    days = series.index.normalize()
+    counts = pd.crosstab(days, pd.Categorical(categories, categories=names), dropna=False)
+    counts = counts.reindex(columns=names, fill_value=0)
+    share = counts.div(counts.sum(axis=1), axis=0)
+    x = pd.DatetimeIndex(share.index) + pd.Timedelta(hours=12)
+    bottom.stackplot(x, *[share[n].to_numpy() for n in present],
+                     colors=[colours[n] for n in present], labels=present, linewidth=0)
+    bottom.set_ylim(0, 1)
+    bottom.set_ylabel("Share of the day")
+    bottom.set_title("Daily share by fill quality", loc="left")
+    bottom.legend(loc="upper center", bbox_to_anchor=(0.5, -0.22), ncols=len(present))
+    drawing.date_axis(bottom, ticks=13)
+    figure.subplots_adjust(bottom=0.14)
+    run = _gap_runs(categories, series.index, interval)
+    longest = (f"the longest run without a measurement is {run[0]:.1f} days from "
+               f"{run[1]:%Y-%m-%d %H:%M}" if run else "every record was measured")
+    caption = ("Look for long dark bands (C and unfilled) and where they fall: gaps at the "
+               f"peak of the season weigh most on the budget; {longest}. Codes: measured, "
+               "A/B/C filled with decreasing confidence, unfilled.")
+    return Figure("fill_quality.png", drawing.png(figure), "Gaps and fill quality", caption)
+
+
+def figure_heatmaps(drawing, written, interval) -> Figure:
+    series = written.timeseries
+    rows = [(("nee_measured", "Measured NEE (kept after screening and the u* filter)"),
+             ("nee_filled", "Gap-filled NEE")),
+            (("gpp_nighttime", "GPP, nighttime method"), ("gpp_daytime", "GPP, daytime method")),
+            (("reco_nighttime", "Reco, nighttime method"),
+             ("reco_daytime", "Reco, daytime method"))]
+    figure = drawing.figure(11.0, 9.6, left=0.06, right=0.9, top=0.94, bottom=0.06,
+                            hspace=0.3, wspace=0.1)
+    axes = figure.subplots(3, 2, sharex=True, sharey=True)
+    nee_norm = drawing.nee_norm(*[series[c] for c in ("nee_measured", "nee_filled")
+                                  if c in series.columns])
+    for row_axes, pair, scale in zip(axes, rows, ("nee", "viridis", "cividis"), strict=True):
+        present = [series[c].to_numpy(dtype=float) for c, _ in pair if c in series.columns]
+        if scale == "nee":
+            colormap, norm = drawing.nee_colormap(), nee_norm
+        else:
+            finite = np.concatenate(present) if present else np.array([])
+            finite = finite[np.isfinite(finite)]
+            high = float(np.percentile(finite, 99.5)) if finite.size else 1.0
+            colormap = drawing.sequential(scale)
+            norm = drawing.colors.Normalize(vmin=0.0, vmax=max(high, 1e-3))
+        image = None
+        for axis, (column, title) in zip(row_axes, pair, strict=True):
+            axis.set_title(title, loc="left")
+            if column not in series.columns:
+                _no_data(axis, f"{column} not written")
+                continue
+            grid, first, n_days = _day_grid(series.index, series[column].to_numpy(), interval)
+            start = drawing.dates.date2num(first.to_pydatetime())
+            _missing_background(axis)
+            image = axis.imshow(grid.T, origin="lower", aspect="auto",
+                                extent=(start, start + n_days, 0.0, 24.0), cmap=colormap,
+                                norm=norm, interpolation="nearest")
+        row_axes[0].set_ylabel("Time of day [h]")
+        row_axes[0].set_yticks([0, 6, 12, 18, 24])
+        if image is not None:
+            box = row_axes[1].get_position()
+            bar_axis = figure.add_axes((0.915, box.y0, 0.015, box.height))
+            bar = figure.colorbar(image, cax=bar_axis, extend="both")
+            bar.set_label(f"[{_FLUX_UNIT}]")
+    for axis in axes[-1]:
+        drawing.date_axis(axis, ticks=7)
+    figure.suptitle(f"Fluxes by day and time of day (local standard time), {_span_text(written)}",
+                    x=0.06, ha="left", fontsize=10.5)
+    caption = ("Compare the daytime method (right) with the nighttime method (left) for "
+               "seasons or hours where they differ; NEE runs from dark blue (strong uptake) "
+               "through near white (zero) to dark red (strong release), and grey hatching "
+               "marks records without a value.")
+    return Figure("heatmaps.png", drawing.png(figure), "Fluxes by day and time of day", caption)
+
+
+def clock_result(manifest: dict):
+    """(estimated shift [min] or None, verdict text or None) from the manifest's clock check."""
+    clock = manifest.get("provenance", {}).get("clock")
+    if clock is None:
+        return None, None
+    if not isinstance(clock, dict):
+        return None, str(clock)
+    shift = None
+    for key in ("shift_minutes", "estimated_shift_minutes", "shift", "offset_minutes",
+                "estimated_shift"):
+        value = clock.get(key)
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            shift = float(value)
+            break
+    verdict = None
+    for key in ("verdict", "status", "result", "message"):
+        if clock.get(key) is not None:
+            verdict = str(clock[key])
+            break
+    return shift, verdict
+
+
+def clock_sentence(manifest: dict) -> str:
+    shift, verdict = clock_result(manifest)
+    if shift is None and verdict is None:
+        return "no clock check in this result folder"
+    parts = []
+    if shift is not None:
+        parts.append(f"estimated shift {shift:+.0f} min")
+    if verdict:
+        parts.append(verdict)
+    return "; ".join(parts)
+
+
+def figure_clock(drawing, written, interval) -> Figure:
+    series = written.timeseries
+    hour = _hour_of_day(series.index, interval)
+    month = series.index.month.to_numpy()
+    months = [m for m in range(1, 13) if (month == m).any()]
+    ncols = 6 if len(months) > 4 else len(months)
+    nrows = -(-len(months) // ncols)
+    height = 0.95 + 1.9 * nrows
+    figure = drawing.figure(11.0, height, left=0.06, right=0.99, top=1 - 0.5 / height,
+                            bottom=0.45 / height, hspace=0.4, wspace=0.08)
+    axes = _panels(figure, len(months), ncols, sharex=True, sharey=True)
+    has_potential = "potential_radiation" in series.columns
+    rg = series["rg"].to_numpy(dtype=float) if "rg" in series.columns else np.full(len(hour), np.nan)
+    potential = (series["potential_radiation"].to_numpy(dtype=float) if has_potential else None)
+    for axis, number in zip(axes, months, strict=True):
+        rows = month == number
+        measured = pd.Series(rg[rows]).groupby(hour[rows]).mean()
+        axis.plot(measured.index, measured.to_numpy(), color=_ORANGE, linewidth=1.6,
+                  label="measured Rg")
+        if has_potential:
+            reference = pd.Series(potential[rows]).groupby(hour[rows]).mean()
+            axis.plot(reference.index, reference.to_numpy(), color=_BLACK, linestyle="--",
+                      linewidth=1.1, label="potential radiation")
+        axis.axvline(12.0, color="#999999", linewidth=0.6)
+        axis.set_title(_MONTHS[number - 1], loc="left", fontsize=8.5)
+        axis.set_xticks([0, 6, 12, 18, 24])
+        axis.tick_params(labelsize=7.5)
+    axes[0].set_xlim(0, 24)
+    for position, axis in enumerate(axes):
+        if position % ncols == 0:
+            axis.set_ylabel("[W m-2]")
+        if position >= len(axes) - ncols:
+            axis.set_xlabel("Time of day [h]", fontsize=8)
+    handles, labels = axes[0].get_legend_handles_labels()
+    figure.legend(handles, labels, loc="upper right", ncols=2, fontsize=8)
+    sentence = clock_sentence(written.manifest)
+    figure.suptitle(f"Clock check: {sentence}", x=0.06, ha="left", fontsize=10.5)
+    missing = "" if has_potential else " (no potential radiation column: measured Rg only)"
+    caption = ("Measured Rg should rise and fall with the dashed potential radiation in every "
+               "month; a curve shifted sideways by the same amount each month points to a "
+               f"clock or time-zone error (run's estimate: {sentence}){missing}.")
+    return Figure("clock_check.png", drawing.png(figure), "Clock check: measured against "
+                  "potential radiation", caption)
+
+
+def figure_monthly(drawing, written) -> Figure:
+    monthly = written.table("monthly")
+    figure = drawing.figure(10.0, 4.4, left=0.08, right=0.98, top=0.9, bottom=0.12)
+    axis = figure.subplots()
+    x = pd.DatetimeIndex(monthly.index) + pd.Timedelta(days=14) if len(monthly) else []
+    styles = [("gpp_nighttime", "GPP, nighttime method", _GREEN, "-", "o"),
+              ("gpp_daytime", "GPP, daytime method", _BLUE, "--", "s"),
+              ("reco_nighttime", "Reco, nighttime method", _VERMILLION, "-", "^"),
+              ("reco_daytime", "Reco, daytime method", _ORANGE, "--", "D"),
+              ("nee", "NEE", _BLACK, ":", "x")]
+    bars = False
+    for column, label, colour, line, marker in styles:
+        if column not in monthly.columns:
+            continue
+        values = monthly[column].to_numpy(dtype=float)
+        sigma = _sigma_column(monthly, column)
+        error = 1.96 * monthly[sigma].to_numpy(dtype=float) if sigma else None
+        bars = bars or sigma is not None
+        axis.errorbar(x, values, yerr=error, color=colour, linestyle=line, marker=marker,
+                      markersize=5, markerfacecolor="white" if line == "--" else colour,
+                      linewidth=1.4, capsize=2, label=label)
+    axis.axhline(0.0, color="#777777", linewidth=0.6)
+    drawing.date_axis(axis, ticks=13)
+    axis.set_ylabel(f"Monthly sum [{_CARBON_UNIT}]")
+    axis.set_title("Monthly sums by both partitioning methods", loc="left")
+    axis.legend(loc="upper left", ncols=3)
+    bar_text = ("error bars are ±1.96 times the monthly 1-sigma written by the run" if bars
+                else "the run wrote no monthly 1-sigma, so no error bars")
+    caption = ("Solid lines (nighttime method) and dashed lines (daytime method) should run "
+               f"close together; a month where they split is uncertain in its partitioning; "
+               f"{bar_text}.")
+    return Figure("monthly_gpp_reco.png", drawing.png(figure), "Monthly GPP, Reco and NEE",
+                  caption)
+
+
+def figure_diurnal(drawing, written, interval) -> Figure:
+    series = written.timeseries
+    hour = _hour_of_day(series.index, interval)
+    month = series.index.month.to_numpy()
+    months = [m for m in range(1, 13) if (month == m).any()]
+    ncols = 6 if len(months) > 4 else len(months)
+    nrows = -(-len(months) // ncols)
+    height = 1.1 + 2.0 * nrows
+    figure = drawing.figure(11.0, height, left=0.06, right=0.99, top=1 - 0.45 / height,
+                            bottom=0.95 / height, hspace=0.35, wspace=0.08)
+    axes = _panels(figure, len(months), ncols, sharex=True, sharey=True)
+    lines = [("nee_filled", "NEE (gap-filled)", _BLACK, "-"),
+             ("gpp_nighttime", "GPP, nighttime", _GREEN, "-"),
+             ("gpp_daytime", "GPP, daytime", _BLUE, "--"),
+             ("reco_nighttime", "Reco, nighttime", _VERMILLION, "-"),
+             ("reco_daytime", "Reco, daytime", _ORANGE, "--")]
+    lines = [line for line in lines if line[0] in series.columns]
+    for axis, number in zip(axes, months, strict=True):
+        rows = month == number
+        for column, label, colour, style in lines:
+            means = pd.Series(series[column].to_numpy(dtype=float)[rows]).groupby(
+                hour[rows]).mean()
+            axis.plot(means.index, means.to_numpy(), color=colour, linestyle=style,
+                      linewidth=1.3, label=label)
+        axis.axhline(0.0, color="#888888", linewidth=0.6)
+        axis.set_title(_MONTHS[number - 1], loc="left", fontsize=8.5)
+        axis.set_xticks([0, 6, 12, 18, 24])
+        axis.tick_params(labelsize=7.5)
+    axes[0].set_xlim(0, 24)
+    for position, axis in enumerate(axes):
+        if position % ncols == 0:
+            axis.set_ylabel(f"[{_FLUX_UNIT}]", fontsize=8)
+        if position >= len(axes) - ncols:
+            axis.set_xlabel("Time of day [h]", fontsize=8)
+    handles, labels = axes[0].get_legend_handles_labels()
+    figure.legend(handles, labels, loc="lower center", ncols=len(lines), fontsize=8)
+    caption = ("Mean diurnal course per month (all years pooled, local standard time): look "
+               "for daytime GPP of the two methods that differ in shape, and for night NEE "
+               "that does not match the Reco curves.")
+    return Figure("diurnal_by_month.png", drawing.png(figure), "Mean diurnal course per month",
+                  caption)
+
+
+def _evenly_spaced(count, wanted):
+    if count <= wanted:
+        return np.arange(count)
+    return np.unique(np.round(np.linspace(0, count - 1, wanted)).astype(int))
+
+
+def figure_night_respiration(drawing, written, interval) -> Figure:
+    series = written.timeseries
+    driver = written.setting("respiration_driver", "tair")
+    temperature_column = _temperature_column(series, driver)
+    periods = period_masks(written)
+    night = (series["is_night"].to_numpy(dtype=bool)
+             & np.isfinite(series["nee_measured"].to_numpy(dtype=float)))
+    e0_annual = written.table("parameters_nighttime_e0_annual")
+    rref_windows = written.table("parameters_nighttime_rref")
+    count = max(len(periods), 1)
+    width, height = 4.6 * min(count, 3) + 1.2, 4.2 * -(-count // 3)
+    figure = drawing.figure(width, height, left=0.7 / width, right=1 - 1.0 / width,
+                            top=1 - 0.45 / height, bottom=0.6 / height, wspace=0.3,
+                            hspace=0.4)
+    axes = _panels(figure, count, 3)
+    colormap = drawing.mpl.colormaps["viridis"]
+    norm = drawing.colors.Normalize(vmin=0.0, vmax=366.0)
+    temperature = series[temperature_column].to_numpy(dtype=float)
+    nee = series["nee_measured"].to_numpy(dtype=float)
+    doy = series.index.day_of_year.to_numpy(dtype=float)
+    scatter = None
+    for axis, (label, (_, first, last, mask, _)) in zip(axes, periods.items(), strict=False):
+        rows = night & mask
+        axis.set_title(f"{label}: {first:%d %b %Y} – {last:%d %b %Y}", loc="left")
+        if not rows.any():
+            _no_data(axis, "no measured night records")
+            continue
+        scatter = axis.scatter(temperature[rows], nee[rows], c=doy[rows], cmap=colormap,
+                               norm=norm, s=3, alpha=0.5, linewidths=0)
+        e0 = np.nan
+        if len(e0_annual) and label in e0_annual.index and "e0" in e0_annual.columns:
+            e0 = float(e0_annual.loc[label, "e0"])
+        windows = rref_windows
+        if len(windows) and "window_centre" in windows.columns:
+            centres = pd.DatetimeIndex(windows["window_centre"])
+            windows = windows[(centres >= first) & (centres <= last)
+                              & np.isfinite(windows["rref"].to_numpy(dtype=float))]
+        times = series.index[rows]
+        for position in _evenly_spaced(len(windows), 6):
+            window = windows.iloc[position]
+            inside = (times >= window["window_start"]) & (times < window["window_end"])
+            span = temperature[rows][inside]
+            span = span[np.isfinite(span)]
+            if span.size < 2:
+                continue
+            grid = np.linspace(span.min(), span.max(), 40)
+            curve = lloyd_taylor(grid, window["rref"], window["e0"])
+            colour = colormap(norm(pd.Timestamp(window["window_centre"]).day_of_year))
+            axis.plot(grid, curve, color="#000000", linewidth=2.8)
+            axis.plot(grid, curve, color=colour, linewidth=1.6)
+        if np.isfinite(e0) and len(windows):
+            finite = temperature[rows][np.isfinite(temperature[rows])]
+            grid = np.linspace(np.percentile(finite, 1), np.percentile(finite, 99), 60)
+            rref = float(np.median(windows["rref"]))
+            axis.plot(grid, lloyd_taylor(grid, rref, e0), color="#000000", linestyle="--",
+                      linewidth=1.5, label=f"E0 = {e0:.0f} K, median Rref = {rref:.2f}")
+            axis.legend(loc="upper left")
+        axis.set_xlabel(f"{_temperature_label(temperature_column)} [°C]")
+        axis.set_ylabel(f"Night NEE [{_FLUX_UNIT}]")
+    if scatter is not None:
+        box = axes[-1].get_position()
+        bar_axis = figure.add_axes((box.x1 + 0.15 / width, box.y0, 0.12 / width, box.height))
+        figure.colorbar(scatter, cax=bar_axis).set_label("Day of year")
+    caption = ("Night respiration should rise with temperature along the Lloyd–Taylor curves "
+               "(Lloyd & Taylor 1994) fitted in short windows (solid, coloured by date) and "
+               "for the period (dashed); a cloud far from the curves points to a poor fit or "
+               "to advection at night.")
+    return Figure("night_respiration.png", drawing.png(figure), "Night respiration and the "
+                  "Lloyd–Taylor fits", caption)
+
+
+def ustar_class_means(series: pd.DataFrame, classes: int, periods: dict) -> dict:
+    """Night NEE by u* class per period: mean u* [m s-1], mean and standard error of NEE."""
+    reason = series["rejection_reason"].astype(object).to_numpy()
+    # kept, or rejected only for low u*: labels in a result folder, codes in memory
+    usable = (series["is_night"].to_numpy(dtype=bool)
+              & np.isin(reason, ("kept", "low_ustar", 0, 5))
+              & np.isfinite(series["nee"].to_numpy(dtype=float))
+              & np.isfinite(series["ustar"].to_numpy(dtype=float)))
+    out = {}
+    for label, (_, _, _, mask, _) in periods.items():
+        rows = usable & mask
+        ustar = series["ustar"].to_numpy(dtype=float)[rows]
+        nee = series["nee"].to_numpy(dtype=float)[rows]
+        if ustar.size < 2 * classes:
+            continue
+        edges = np.quantile(ustar, np.linspace(0.0, 1.0, classes + 1))
+        # classes (e[i-1], e[i]], the lowest closed: equal record counts
+        group = np.clip(np.searchsorted(edges, ustar, side="left") - 1, 0, classes - 1)
+        frame = pd.DataFrame({"group": group, "ustar": ustar, "nee": nee}).groupby("group")
+        stats = frame.agg(ustar=("ustar", "mean"), nee=("nee", "mean"), sd=("nee", "std"),
+                          n=("nee", "size"))
+        stats["se"] = stats["sd"] / np.sqrt(stats["n"])
+        out[label] = stats
+    return out
+
+
+def figure_ustar(drawing, written) -> Figure:
+    series = written.timeseries
+    classes = int(written.setting("ustar_classes", 20))
+    periods = period_masks(written)
+    means = ustar_class_means(series, classes, periods)
+    table = written.table("ustar")
+    draws = written.table("parameters_ustar_bootstrap")
+    labels = list(periods)
+    colours = _year_colours(drawing, labels)
+    figure = drawing.figure(11.0, 4.3, left=0.07, right=0.98, top=0.9, bottom=0.13, wspace=0.22)
+    left, right = figure.subplots(1, 2)
+    annual_rows = (table[table["period"] == "year"].set_index("year")
+                   if len(table) and {"period", "year"} <= set(table.columns) else pd.DataFrame())
+    for label in labels:
+        colour = colours[label]
+        if label in means:
+            stats = means[label]
+            left.errorbar(stats["ustar"], stats["nee"], yerr=stats["se"], color=colour,
+                          marker="o", markersize=4, linewidth=1.2, capsize=2,
+                          label=f"{label}: class means ± 1 s.e.")
+        if label in annual_rows.index:
+            threshold = float(annual_rows.loc[label, "threshold"])
+            left.axvline(threshold, color=colour, linestyle="--", linewidth=1.4,
+                         label=f"{label}: threshold {threshold:.3f} m s-1")
+            if {"threshold_p05", "threshold_p95"} <= set(annual_rows.columns):
+                low = float(annual_rows.loc[label, "threshold_p05"])
+                high = float(annual_rows.loc[label, "threshold_p95"])
+                if np.isfinite(low) and np.isfinite(high):
+                    left.axvspan(low, high, color=colour, alpha=0.15, linewidth=0)
+    if not means:
+        _no_data(left, "too few night records for u* classes")
+    else:
+        left.set_xlabel("u* (class mean) [m s-1]")
+        left.set_ylabel(f"Night NEE (class mean) [{_FLUX_UNIT}]")
+        left.legend(loc="lower right")
+    left.set_title(f"Night NEE in {classes} u* classes", loc="left")
+    annual_draws = (draws[draws["period"] == "year"]
+                    if len(draws) and "period" in draws.columns else pd.DataFrame())
+    values = (annual_draws["threshold"].to_numpy(dtype=float) if len(annual_draws)
+              else np.array([]))
+    values = values[np.isfinite(values)]
+    if values.size:
+        edges = np.histogram_bin_edges(values, bins=min(25, max(5, values.size // 4)))
+        for label in labels:
+            chosen = annual_draws.loc[annual_draws["year"] == label, "threshold"].to_numpy(
+                dtype=float)
+            chosen = chosen[np.isfinite(chosen)]
+            if chosen.size:
+                right.hist(chosen, bins=edges, histtype="stepfilled", alpha=0.35,
+                           color=colours[label], edgecolor=colours[label], linewidth=1.2,
+                           label=f"{label}: {chosen.size} draws")
+            if label in annual_rows.index:
+                right.axvline(float(annual_rows.loc[label, "threshold"]),
+                              color=colours[label], linestyle="--", linewidth=1.4)
+        right.set_xlabel("u* threshold [m s-1]")
+        right.set_ylabel("Bootstrap draws [count]")
+        right.legend(loc="upper right")
+    else:
+        _no_data(right, "no bootstrap distribution\n(fixed threshold or no draws)")
+    right.set_title("Bootstrap distribution of the annual threshold", loc="left")
+    caption = ("Night NEE should level off above the dashed threshold (left; the detector "
+               "itself works by season and temperature class, Reichstein et al. 2005, Papale "
+               "et al. 2006) and the bootstrap thresholds should cluster (right); a wide "
+               "spread makes the u* part of the uncertainty large.")
+    return Figure("ustar_threshold.png", drawing.png(figure), "u* threshold diagnostics",
+                  caption)
+
+
+def window_status(parameters: pd.DataFrame) -> pd.DataFrame:
+    """Per light-response window: ``state`` (accepted, at bound, replaced, rejected), ``why``.
+
+    Reads the run's ``status`` string where written ("accepted", "replaced: ...",
+    "rejected: ..."), else the ``accepted`` flag and the ``reason`` text; a window
+    whose reason names a bound is marked "at bound" even when accepted.
+    """
+    if not len(parameters):
+        return pd.DataFrame({"state": pd.Series(dtype=object), "why": pd.Series(dtype=object)})
+    reason = (parameters["reason"].astype("string").fillna("") if "reason" in parameters.columns
+              else pd.Series("", index=parameters.index, dtype="string"))
+    if "status" in parameters.columns:
+        status = parameters["status"].astype("string").fillna("").str.strip()
+        head = status.str.extract(r"^([A-Za-z ]+?)\s*(?:[:(,;-]\s*(.*))?$")
+        state = head[0].fillna("").str.lower()
+        why = head[1].fillna("")
+        why = why.where(why != "", reason)
+    else:
+        accepted = (parameters["accepted"].astype(bool) if "accepted" in parameters.columns
+                    else pd.Series(True, index=parameters.index))
+        state = pd.Series(np.where(accepted, "accepted", "rejected"), index=parameters.index)
+        why = reason.where(reason.str.lower() != "ok", "")
+    at_bound = why.str.contains("bound", case=False, na=False) & (state == "accepted")
+    state = state.where(~at_bound, "at bound")
+    return pd.DataFrame({"state": state.astype(object), "why": why.astype(object)},
+                        index=parameters.index)
+
+
+_STATE_STYLE = {
+    "accepted": ("o", _BLUE, "accepted"),
+    "at bound": ("^", _VERMILLION, "accepted, a parameter at its bound"),
+    "replaced": ("s", _ORANGE, "replaced"),
+    "rejected": ("x", "#555555", "rejected"),
+}
+
+
+def _light_windows(parameters: pd.DataFrame, states: pd.DataFrame, wanted: int = 4):
+    """Up to `wanted` windows with fitted values spread over the record, flagged ones first."""
+    columns = ["alpha", "beta0", "k", "rref", "e0"]
+    if not len(parameters) or not set(columns) <= set(parameters.columns):
+        return parameters.iloc[:0]
+    fitted = parameters[np.isfinite(parameters[columns].to_numpy(dtype=float)).all(axis=1)
+                        & (states["state"] != "rejected")]
+    fitted = fitted.sort_values("window_centre", kind="stable")
+    if not len(fitted):
+        return fitted
+    picks = []
+    for part in np.array_split(np.arange(len(fitted)), min(wanted, len(fitted))):
+        block = fitted.iloc[part]
+        flagged = states.loc[block.index, "state"] != "accepted"
+        points = block["points"].to_numpy(dtype=float) if "points" in block else np.ones(len(block))
+        score = points + np.where(flagged.to_numpy() & (len(picks) % 2 == 1), 1e6, 0.0)
+        picks.append(block.index[int(np.argmax(score))])
+    return fitted.loc[picks]
+
+
+def figure_light_response(drawing, written) -> Figure:
+    series = written.timeseries
+    parameters = written.table("parameters_daytime")
+    states = window_status(parameters)
+    windows = _light_windows(parameters, states)
+    driver = written.setting("respiration_driver", "tair")
+    temperature_column = _temperature_column(series, driver)
+    rg_column = "rg_filled" if "rg_filled" in series.columns else "rg"
+    vpd_column = "vpd_filled" if "vpd_filled" in series.columns else "vpd"
+    figure = drawing.figure(11.0, 8.6, left=0.07, right=0.9, top=0.95, bottom=0.07,
+                            hspace=0.45, wspace=0.22)
+    grid_spec = figure.add_gridspec(3, 2, height_ratios=[1.0, 1.3, 1.3])
+    timeline = figure.add_subplot(grid_spec[0, :])
+    examples = [figure.add_subplot(grid_spec[1 + i // 2, i % 2]) for i in range(4)]
+    if len(parameters) and {"window_centre", "beta0", "alpha"} <= set(parameters.columns):
+        centres = pd.DatetimeIndex(parameters["window_centre"])
+        twin = timeline.twinx()
+        for state, (marker, colour, label) in _STATE_STYLE.items():
+            rows = (states["state"] == state).to_numpy()
+            if not rows.any():
+                continue
+            beta = parameters["beta0"].to_numpy(dtype=float)[rows]
+            beta = np.where(np.isfinite(beta), beta, 0.0)
+            timeline.scatter(centres[rows], beta, marker=marker, color=colour, s=22,
+                             label=f"β0, {label} ({rows.sum()})", zorder=3)
+        timeline.plot(centres, parameters["beta0"].to_numpy(dtype=float), color="#999999",
+                      linewidth=0.6, zorder=1)
+        twin.plot(centres, parameters["alpha"].to_numpy(dtype=float), color=_GREEN,
+                  linewidth=1.0, linestyle=":", label="α")
+        twin.set_ylabel("α [µmol J-1]", color=_GREEN)
+        twin.grid(False)
+        bound = written.setting("daytime_beta0_max")
+        if isinstance(bound, (int, float)):
+            timeline.axhline(float(bound), color=_VERMILLION, linewidth=0.8, linestyle="--")
+        top = np.nanmax(np.append(parameters["beta0"].to_numpy(dtype=float),
+                                  float(bound) if isinstance(bound, (int, float)) else 1.0))
+        timeline.set_ylim(-0.05 * top, 1.45 * top)
+        timeline.set_ylabel(f"β0 [{_FLUX_UNIT}]", fontsize=8)
+        timeline.legend(loc="upper left", ncols=4, fontsize=7.5, frameon=True,
+                        framealpha=0.9, edgecolor="#cccccc")
+        drawing.date_axis(timeline, ticks=13)
+        timeline.set_title("Light-response windows: β0 per window (markers by status), α dotted",
+                           loc="left")
+    else:
+        _no_data(timeline, "no light-response parameter table in this result folder")
+    colormap = drawing.mpl.colormaps["cividis"]
+    day = (~series["is_night"].to_numpy(dtype=bool)
+           & np.isfinite(series["nee_measured"].to_numpy(dtype=float)))
+    vpd_all = series[vpd_column].to_numpy(dtype=float)[day]
+    vpd_high = float(np.nanpercentile(vpd_all, 99)) if np.isfinite(vpd_all).any() else 1.0
+    norm = drawing.colors.Normalize(vmin=0.0, vmax=max(vpd_high, 1.0))
+    scatter = None
+    for axis in examples[len(windows):]:
+        axis.set_visible(False)
+    if not len(windows):
+        examples[0].set_visible(True)
+        _no_data(examples[0], "no fitted light-response windows")
+    for axis, (position, window) in zip(examples, windows.iterrows(), strict=False):
+        inside = day & (series.index >= window["window_start"]) & (
+            series.index < window["window_end"])
+        rg = series[rg_column].to_numpy(dtype=float)[inside]
+        vpd = series[vpd_column].to_numpy(dtype=float)[inside]
+        temperature = series[temperature_column].to_numpy(dtype=float)[inside]
+        nee = series["nee_measured"].to_numpy(dtype=float)[inside]
+        scatter = axis.scatter(rg, nee, c=vpd, cmap=colormap, norm=norm, s=12,
+                               edgecolors="#333333", linewidths=0.3)
+        grid = np.linspace(0.0, max(float(np.nanmax(rg)) if rg.size else 1.0, 1.0), 60)
+        vpd_typical = float(np.nanmedian(vpd)) if np.isfinite(vpd).any() else 0.0
+        t_typical = float(np.nanmedian(temperature)) if np.isfinite(temperature).any() else 10.0
+        model = (lloyd_taylor(np.full_like(grid, t_typical), window["rref"], window["e0"])
+                 - light_response(grid, np.full_like(grid, vpd_typical), window["alpha"],
+                                  window["beta0"], window["k"]))
+        axis.plot(grid, model, color="#000000", linewidth=1.6,
+                  label=f"fit at VPD {vpd_typical:.1f} hPa, T {t_typical:.1f} °C")
+        start = pd.Timestamp(window["window_start"])
+        end = pd.Timestamp(window["window_end"]) - pd.Timedelta(minutes=1)
+        state, why = states.loc[position, "state"], states.loc[position, "why"]
+        flagged = state != "accepted"
+        axis.set_title(f"{start:%d %b} – {end:%d %b %Y}: {state}" + (f" ({why})" if why else ""),
+                       loc="left", color=_VERMILLION if flagged else _BLACK, fontsize=8.5)
+        if flagged:
+            for spine in axis.spines.values():
+                spine.set_edgecolor(_VERMILLION)
+                spine.set_linewidth(1.6)
+        axis.text(0.98, 0.97, f"α = {window['alpha']:.4f}\nβ0 = {window['beta0']:.1f}\n"
+                  f"k = {window['k']:.3f}\nRref = {window['rref']:.2f}", transform=axis.transAxes,
+                  ha="right", va="top", fontsize=7.5,
+                  bbox={"facecolor": "white", "edgecolor": "#bbbbbb", "alpha": 0.85})
+        axis.set_xlabel("Global radiation Rg [W m-2]", fontsize=8)
+        axis.set_ylabel(f"NEE [{_FLUX_UNIT}]", fontsize=8)
+        axis.legend(loc="lower left", fontsize=7)
+    if scatter is not None:
+        box_top = examples[1].get_position()
+        box_bottom = examples[3].get_position() if examples[3].get_visible() else box_top
+        bar_axis = figure.add_axes((0.915, box_bottom.y0, 0.015, box_top.y1 - box_bottom.y0))
+        figure.colorbar(scatter, cax=bar_axis).set_label("VPD [hPa]")
+    counts = states["state"].value_counts() if len(states) else pd.Series(dtype=int)
+    tally = ", ".join(f"{int(counts[s])} {s}" for s in _STATE_STYLE if s in counts.index)
+    caption = ("Red triangles and red-framed panels are windows whose fit sits at a parameter "
+               "bound, orange squares windows replaced by a neighbour, grey crosses rejected "
+               f"ones ({tally or 'no windows'}); many flagged windows in the growing season "
+               "make the daytime method's GPP less trustworthy there (model: Lasslop et al. "
+               f"2010, VPD limit above {LASSLOP_VPD0_HPA:g} hPa).")
+    return Figure("light_response.png", drawing.png(figure), "Light-response windows", caption)
+
+
+# --------------------------------------------------------------------------- all
+
+
+def draw_figures(written: Written, progress=None) -> list[Figure]:
+    """Draw every figure of :data:`FIGURES` in page order (one `progress()` call each)."""
+    drawing = Drawing()
+    interval = interval_minutes(written.timeseries.index)
+    tick = progress if progress is not None else (lambda: None)
+    painters = (
+        lambda: figure_daily(drawing, written, interval),
+        lambda: figure_cumulative(drawing, written, interval),
+        lambda: figure_fill_quality(drawing, written, interval),
+        lambda: figure_heatmaps(drawing, written, interval),
+        lambda: figure_clock(drawing, written, interval),
+        lambda: figure_monthly(drawing, written),
+        lambda: figure_diurnal(drawing, written, interval),
+        lambda: figure_night_respiration(drawing, written, interval),
+        lambda: figure_ustar(drawing, written),
+        lambda: figure_light_response(drawing, written),
+    )
+    figures = []
+    with drawing.mpl.rc_context():
+        drawing.mpl.rcdefaults()
+        drawing.mpl.rcParams.update(_RC)
+        for paint in painters:
+            figures.append(paint())
+            tick()
+    return figures
