@@ -329,7 +329,7 @@ def _stale_reason(config, directory) -> str | None:
         return "manifest format changed"
     try:
         config_sha = file_sha256(config)
-        input_sha = file_sha256(read_site_config(config).input_path)
+        input_sha = read_site_config(config).input_sha256()
         settings = Config.from_toml(config).to_dict()
     except (FluxpartError, OSError):
         return "site config or input unreadable"

@@ -361,6 +361,16 @@ class SiteConfig:
                        for path, digest in zip(self.input_paths, hashes, strict=True))
         return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
+    def input_record(self) -> dict:
+        """The input's provenance: ``path`` (absolute; the first file of several),
+        ``sha256`` (:meth:`input_sha256`) and, for several files, ``files``: the path
+        and SHA-256 of each."""
+        record = {"path": str(Path(self.input_path).resolve()), "sha256": self.input_sha256()}
+        if len(self.input_paths) > 1:
+            record["files"] = [{"path": str(Path(path).resolve()), "sha256": _file_sha256(path)}
+                               for path in self.input_paths]
+        return record
+
     def read(self) -> tuple[pd.DataFrame, ReadReport]:
         """Read the site's records: ``(frame, report)`` as from :func:`read_table`."""
         return read_table(list(self.input_paths), **self.table_arguments())

@@ -561,7 +561,6 @@ def process_site_config(path, config: Config | None = None, *, progress=None,
     import hashlib
 
     from .io import read_site_config
-    from .store import file_sha256
 
     site_config = read_site_config(path)
     if input_path is not None:
@@ -574,15 +573,11 @@ def process_site_config(path, config: Config | None = None, *, progress=None,
         # where the settings came from: verify reruns from the site config's own
         # [processing] table when they came from it, so an edited setting is named
         "settings": "site config" if config == from_file else "given by the caller",
-        "reader": {"records_read": report.records_read, "stamps_inserted": report.stamps_inserted,
-                   "time_marks": report.time_marks, "shift_minutes": report.shift_minutes,
-                   "columns": dict(report.columns), "units": dict(report.units),
-                   "derived": list(report.derived), "warnings": list(report.warnings)},
+        "reader": report.to_dict(),
         "site_config": {"path": str(Path(path).resolve()),
                         "sha256": hashlib.sha256(config_bytes).hexdigest(),
                         "text": config_bytes.decode("utf-8", errors="replace")},
 
-        "input": {"path": str(Path(site_config.input_path).resolve()), "sha256": file_sha256(
-            site_config.input_path)},
+        "input": site_config.input_record(),
     }
     return process(frame, site_config.site, config, provenance=provenance, progress=progress)

@@ -541,6 +541,26 @@ def _input_file(directory: Path, recorded: dict, given, config_path: Path | None
     return path, None
 
 
+def _input_files(recorded: dict, config_path: Path | None):
+    """A run over several input files: the site config's files must hash as recorded.
+
+    Return a difference or None. The files are found through the site config that
+    lists them (its ``[input] path``).
+    """
+    if config_path is None:
+        raise InputFileError("verify: the run read several input files; give the site config "
+                             "that lists them with --config (its [input] path finds them)")
+    from .io import read_site_config
+
+    site_config = read_site_config(config_path)
+    actual = site_config.input_sha256()
+    if actual != recorded.get("sha256"):
+        return Difference("input", "input", column="input files",
+                          row=", ".join(str(path) for path in site_config.input_paths),
+                          stored=str(recorded.get("sha256")), recomputed=actual)
+    return None
+
+
 def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch: Path,
                notes: list):
     """Return (source, result or None, input differences)."""
@@ -567,7 +587,10 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
     if changed is not None:
         return "run", None, [changed]
     real_config = None if site_config.parent == scratch else site_config
-    data_path, changed = _input_file(directory, provenance["input"], input_path, real_config)
+    if input_path is None and len(provenance["input"].get("files") or []) > 1:
+        data_path, changed = None, _input_files(provenance["input"], real_config)
+    else:
+        data_path, changed = _input_file(directory, provenance["input"], input_path, real_config)
     if changed is not None:
         return "run", None, [changed]
     if provenance.get("settings") == "site config":

@@ -1199,3 +1199,18 @@ def test_accept_units_setting_validated(tmp_path):
     records, site = _climate("grassland")
     with pytest.raises(ConfigError, match=r"\[input\] accept_units = \['nnee'\]"):
         _read(_write(tmp_path / "t.csv", records), site=site, accept_units=["nnee"])
+
+
+def test_input_record_of_several_files(tmp_path):
+    """The provenance of several files lists each with its SHA-256 (hashlib) and a joint hash."""
+    records = _records(periods=200)
+    _write(tmp_path / "tower_a.csv", records.iloc[:100], marks="end")
+    _write(tmp_path / "tower_b.csv", records.iloc[100:], marks="end")
+    site_config = read_site_config(_site_toml(tmp_path, csv="tower_*.csv"))
+    record = site_config.input_record()
+    assert [entry["sha256"] for entry in record["files"]] == [
+        _sha256(tmp_path / "tower_a.csv"), _sha256(tmp_path / "tower_b.csv")]
+    joint = "".join(f"tower_{x}.csv\t{_sha256(tmp_path / f'tower_{x}.csv')}\n" for x in "ab")
+    assert record["sha256"] == hashlib.sha256(joint.encode()).hexdigest()
+    _, report = site_config.read()
+    assert report.to_dict()["files"] == [str(p) for p in site_config.input_paths]
