@@ -1,31 +1,38 @@
-"""The uncertainty budget: random error of NEE, its annual sum, u* and partitioning parts.
+"""The uncertainty budget: 1-sigma parts of every period sum and the stated 95 % intervals.
 
-Three parts of the uncertainty of an annual carbon budget are estimated and then
-combined (DESIGN.md §5, "Random uncertainty"):
+Every part is stated as one standard deviation; the parts are combined by root
+sum of squares and the annual interval is ``sum ± 1.96 σ`` (DESIGN.md §4.1):
 
-1. **Random error** of each NEE record. The paired-observation method
+1. **Random error** of each measured NEE record. The paired-observation method
    (Hollinger & Richardson 2005; Richardson et al. 2006) compares two measured
-   records exactly 24 h apart under similar conditions: the true flux is then
-   nearly the same, so their difference is mostly the random error of two
-   measurements. Its standard deviation divided by √2 estimates the error of one
-   record. Binned by flux magnitude, separately for uptake and release, the
-   error grows linearly with ``|NEE|`` (:func:`random_error_model`). Each record
-   gets a standard deviation (:func:`record_random_error`), and annual sums get
-   their random uncertainty by Monte Carlo with Laplace-distributed errors
-   (:func:`monte_carlo_sums`).
-2. **u* threshold**: half the range of the annual sums obtained with the u*
-   threshold at the bootstrap percentiles (the pipeline's scenario runs).
-3. **Partitioning method** (GPP and Reco only): half the absolute difference of
-   the daytime and nighttime methods.
+   records exactly 24 h apart under similar conditions; binned by flux
+   magnitude, the error grows linearly with ``|NEE|`` (:func:`random_error_model`).
+   Annual sums of the measured records get their random uncertainty by Monte
+   Carlo with Laplace-distributed errors (:func:`monte_carlo_sums`).
+2. **Gap filling**: artificial gaps with the site's own gap lengths are cut into
+   its measured records, filled by the same method and scored
+   (:func:`artificial_gap_errors`); the error of a gap's sum is modelled as
+   a·n + b·n² (independent and within-gap correlated parts, the correlation
+   growing with gap length as Richardson & Hollinger 2007 describe) plus a
+   systematic fill bias (:func:`gapfill_error_model`).
+3. **u* threshold**: the spread of the sums over the u* scenario runs divided by
+   the span of the standard-normal quantiles of their percentiles (:func:`ustar_sigma`).
+4. **Fitted parameters**: E0 (its standard error, propagated through the
+   night-to-day extrapolation, :func:`e0_sensitivity`) and the reference
+   respiration of every window (:func:`window_membership`).
+5. **Partitioning structure** (GPP and Reco): |daytime − nighttime| / √2.
 
-:func:`uncertainty_budget` combines them by root sum of squares and
-:func:`carbon_accounting_units` restates net uptake in t CO2 ha-1.
+:func:`period_uncertainty` computes the parts per day, month or year;
+:func:`uncertainty_budget` adds the annual intervals; :func:`carbon_accounting_units`
+restates net uptake in t CO2 ha-1.
 
-Caution: these are the uncertainties the tower data themselves reveal. Systematic
-errors (energy-balance closure, advection, storage, footprint, calibration) are
-not included. A tower budget is one line of evidence for carbon-credit
-quantification, not a certified credit; the applicable crediting methodology and
-accredited verification decide how, and whether, such numbers may be used.
+Caution: these are the uncertainties the tower data themselves reveal.
+:data:`NOT_QUANTIFIED` lists what they do not contain (systematic measurement
+errors: energy-balance closure, advection, storage, footprint, calibration; a
+model structure shared by both partitioning methods). A tower budget is one line
+of evidence for carbon-credit quantification, not a certified credit; the
+applicable crediting methodology and accredited verification decide how, and
+whether, such numbers may be used.
 
 References
 ----------
@@ -37,6 +44,10 @@ Richardson, A. D., Hollinger, D. Y., Burba, G. G., et al. (2006). A multi-site
 analysis of random error in tower-based measurements of carbon and energy
 fluxes. Agricultural and Forest Meteorology 136, 1–18.
 doi:10.1016/j.agrformet.2006.01.007
+
+Richardson, A. D. & Hollinger, D. Y. (2007). A method to estimate the additional
+uncertainty in gap-filled NEE resulting from long gaps in the CO2 flux record.
+Agricultural and Forest Meteorology 147, 199–208. doi:10.1016/j.agrformet.2007.06.004
 """
 
 from __future__ import annotations
@@ -157,6 +168,11 @@ ANNUAL_COLUMNS: dict[str, tuple[str, str]] = {
     "gpp_uncertainty_partitioning": (_CARBON, "1 sigma: structural error of GPP estimated as "
                                      "|daytime - nighttime| / sqrt(2); in the totals of both "
                                      "methods"),
+    "reco_uncertainty_temperature_driver": (_CARBON, "1 sigma: structural error of Reco and GPP "
+                                            "from the choice of respiration temperature: "
+                                            "|nighttime Reco with the other temperature - "
+                                            "nighttime Reco| / sqrt(2); shown beside the totals, "
+                                            "NOT in them (NaN without soil temperature)"),
     "reco_uncertainty_partitioning": (_CARBON, "1 sigma: structural error of Reco estimated as "
                                       "|daytime - nighttime| / sqrt(2); in the totals of both "
                                       "methods"),
@@ -1116,6 +1132,9 @@ class UncertaintyInputs:
     day_window, day_relative_se : numpy.ndarray
         Daytime window of each record and the relative standard error of its
         reference respiration.
+    driver_delta : numpy.ndarray or None
+        Nighttime Reco with the other respiration temperature (air or soil) minus
+        the central Reco [µmol m-2 s-1]; None where only one temperature exists.
     """
 
     measured: np.ndarray
@@ -1129,11 +1148,12 @@ class UncertaintyInputs:
     night_relative_se: np.ndarray
     day_window: np.ndarray
     day_relative_se: np.ndarray
+    driver_delta: np.ndarray | None = None
 
 
 def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma, is_night,
                   temperature, nighttime_result, daytime_parameters, gapfill_model, *,
-                  rref_window_days=4.0) -> UncertaintyInputs:
+                  rref_window_days=4.0, other_driver_reco=None) -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -1161,6 +1181,8 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         From :func:`gapfill_error_model`.
     rref_window_days : float
         Length of the nighttime Rref windows [days] (blocks of the E0 sensitivity).
+    other_driver_reco : array_like, optional
+        Nighttime Reco computed with the other respiration temperature [µmol m-2 s-1].
 
     Returns
     -------
@@ -1181,7 +1203,9 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         is_night=np.asarray(is_night, dtype=bool), fluxes=fluxes,
         runs={name: frame for name, frame in runs.items()}, gapfill_model=gapfill_model,
         e0_delta=delta, night_window=night_window, night_relative_se=night_se,
-        day_window=day_window, day_relative_se=day_se)
+        day_window=day_window, day_relative_se=day_se,
+        driver_delta=None if other_driver_reco is None else
+        np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float))
 
 
 def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
@@ -1230,6 +1254,13 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       GPP: the same Reco error over the daylight records, because the fitted
       daytime NEE is held by the data, so an error of the respiration term is
       an equal error of GPP. Nighttime GPP = Reco − NEE takes the parts of both.
+    - respiration temperature (shown, **not** in the totals; where both air and
+      soil temperature exist): |Reco(other temperature) − Reco| / √2 of the
+      nighttime method. Both methods use the same temperature, so a wrong choice
+      moves both alike and the method difference cannot reveal it. Taken into the
+      totals it widened the demo's Reco interval to ±28 % although air
+      temperature was the true driver, so it is reported beside them for the
+      user's judgement.
     - partitioning (structural): |daytime − nighttime| / √2 for GPP and for Reco,
       added to both methods: if the two methods' errors are independent with a
       common standard deviation s, their difference has standard deviation
@@ -1317,6 +1348,11 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         difference = carbon[f"{kind}_daytime"] - carbon[f"{kind}_nighttime"]
         method[kind] = difference.abs() / np.sqrt(2.0)
         out[f"{kind}_uncertainty_partitioning"] = method[kind]
+    if inputs.driver_delta is not None:
+        driver = per_period(np.nan_to_num(inputs.driver_delta)).abs() * factor / np.sqrt(2.0)
+    else:
+        driver = pd.Series(np.nan, index=index)
+    out["reco_uncertainty_temperature_driver"] = driver
 
     def total(*parts):
         table = pd.concat([pd.Series(p, index=index) for p in parts], axis=1)
