@@ -61,19 +61,43 @@ class Config:
     ustar_correlation_limit : float
         Temperature classes are used only where |r(u*, T)| is below this; 0.4,
         Papale et al. (2006) (m).
-    ustar_min_threshold : float
-        Floor of a detected threshold [m s-1]; 0.1, our choice after the floors used
-        with the moving point test (m).
+    ustar_min_threshold : float or None
+        Floor of a detected threshold [m s-1]. ``None`` (default): by the site's
+        canopy (``[site] canopy``), 0.1 m s-1 for a tall canopy and 0.01 m s-1 for a
+        short one, the floors used with the moving point test (Papale et al. 2006
+        (m)): short crops and grass hold little CO2 below the sensor and often have
+        thresholds under 0.1 m s-1, which a 0.1 floor would hide.
     ustar_bootstrap_draws : int
         Bootstrap resamples of the night data for the threshold's distribution; 100,
         Papale et al. (2006) (m). 0 skips the bootstrap and the scenarios.
     ustar_scenarios : tuple of int
         Bootstrap percentiles of the threshold with which gap filling and both
         partitionings are rerun, giving the threshold's share of the uncertainty;
-        (5, 50, 95), our choice after common practice. Each must be one of 5, 16,
-        50, 84, 95; empty for none.
+        (16, 50, 84): half their spread is a 1-sigma-equivalent range (the 15.9 and
+        84.1 percentiles of a normal distribution), so it can be combined with other
+        1-sigma parts. Each must be one of 5, 16, 50, 84, 95, in increasing order;
+        empty for none.
+    gapfill_donors : str
+        Which measured records may fill an NEE gap. ``"separate_day_night"``
+        (default): night gaps only from night records and day gaps only from day
+        records (Falge et al. 2001, Agric. For. Meteorol. 107:43–69, fill day and
+        night separately); ``"similar_conditions_only"``: any record within the
+        similarity tolerances, the single rule of Reichstein et al. (2005), under
+        which twilight records with photosynthesis fill night gaps and bias annual
+        NEE low (issue 11: median −17.5 g C m-2 on the demo).
+    gapfill_min_donors : int
+        Fewest records a gap-filling pass must average to fill an NEE gap; 3, our
+        choice: one record's random error or an undetected spike must not set a
+        fill alone, and the fill's spread needs more than one record.
+    gapfill_interpolation_hours : float
+        Driver gaps (Tair, VPD, Tsoil) up to this long [hours] are filled by linear
+        interpolation (quality ``"interpolated"``); 0 turns it off. 3 h, our choice:
+        these drivers change smoothly over hours (issue 11: 0.8–0.9 K RMSE against
+        3.1–3.5 K for radiation-similarity fills).
     gapfill_max_window_days : float
-        Largest half-width of any gap-filling window [days]; 70, our choice.
+        Largest half-width of any gap-filling window [days]; 140, Reichstein,
+        gap-filling flow chart, workshop slides 2004 (the driver steps widen to
+        ±140 days).
     rg_tolerance : float
         Marginal distribution sampling: similar global radiation within ± this
         [W m-2]; Reichstein et al. (2005), appendix: 50 W m-2.
@@ -176,10 +200,13 @@ class Config:
     ustar_classes: int = 20
     ustar_plateau_share: float = 0.99
     ustar_correlation_limit: float = 0.4
-    ustar_min_threshold: float = 0.1
+    ustar_min_threshold: float | None = None
     ustar_bootstrap_draws: int = 100
-    ustar_scenarios: tuple[int, ...] = (5, 50, 95)
-    gapfill_max_window_days: float = 70.0
+    ustar_scenarios: tuple[int, ...] = (16, 50, 84)
+    gapfill_donors: str = "separate_day_night"
+    gapfill_min_donors: int = 3
+    gapfill_interpolation_hours: float = 3.0
+    gapfill_max_window_days: float = 140.0
     rg_tolerance: float = 50.0
     tair_tolerance: float = 2.5
     vpd_tolerance: float = 5.0
@@ -267,6 +294,7 @@ def suggest_key(key: str, valid) -> str:
 
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil"),
+            "gapfill_donors": ("separate_day_night", "similar_conditions_only"),
             "daytime_weighting": ("random_error", "none"),
             "ustar_method": ("moving_point", "change_point", "fixed")}
 _POSITIVE = ("night_rg_threshold", "rg_tolerance", "tair_tolerance", "vpd_tolerance",
@@ -277,10 +305,12 @@ _POSITIVE = ("night_rg_threshold", "rg_tolerance", "tair_tolerance", "vpd_tolera
              "ustar_correlation_limit", "random_error_rg_tolerance",
              "random_error_tair_tolerance", "random_error_vpd_tolerance",
              "daytime_consistency_z")
-_NON_NEGATIVE = ("ustar_threshold", "ustar_min_threshold", "rg_margin", "rg_relative_margin")
+_NON_NEGATIVE = ("ustar_threshold", "rg_margin", "rg_relative_margin",
+                 "gapfill_interpolation_hours")
 _COUNTS = ("e0_min_points", "e0_best_windows", "rref_min_points", "daytime_min_points",
            "daytime_k_min_points", "ustar_temperature_classes", "ustar_classes",
-           "random_error_draws", "daytime_night_min_points")
+           "random_error_draws", "gapfill_min_donors",
+           "daytime_night_min_points")
 _PERCENTILES = (5, 16, 50, 84, 95)
 
 
@@ -309,7 +339,15 @@ def _check(config: Config) -> None:
     if not isinstance(draws, int) or isinstance(draws, bool) or draws < 0:
         raise ConfigError(f"[processing] ustar_bootstrap_draws = {draws!r}: expected a whole "
                           "number >= 0")
+    floor = config.ustar_min_threshold
+    if floor is not None and (not _is_number(floor) or not 0 <= floor < float("inf")):
+        raise ConfigError(f"[processing] ustar_min_threshold = {floor!r}: expected a number "
+                          ">= 0 [m s-1], or leave it out for the canopy's floor")
     scenarios = config.ustar_scenarios
+    if (isinstance(scenarios, tuple) and all(_is_number(p) for p in scenarios)
+            and list(scenarios) != sorted(scenarios)):
+        raise ConfigError(f"[processing] ustar_scenarios = {list(scenarios)!r}: percentiles "
+                          "out of order; list them in increasing order, e.g. [16, 50, 84]")
     if (not isinstance(scenarios, tuple) or len(set(scenarios)) != len(scenarios)
             or any(not isinstance(p, int) or isinstance(p, bool) or p not in _PERCENTILES
                    for p in scenarios)):

@@ -225,7 +225,8 @@ def _ustar_thresholds(frame, screened, is_night, site, config):
         frame.index, screened["nee"].to_numpy(), screened["ustar"].to_numpy(),
         screened["tair"].to_numpy(), is_night, site.latitude, detector=config.ustar_method,
         draws=config.ustar_bootstrap_draws, seed=config.seed,
-        min_threshold=config.ustar_min_threshold,
+        min_threshold=(ustar.CANOPY_FLOORS[site.canopy] if config.ustar_min_threshold is None
+                       else config.ustar_min_threshold),
         temperature_classes=config.ustar_temperature_classes,
         ustar_classes=config.ustar_classes, plateau_share=config.ustar_plateau_share,
         correlation_limit=config.ustar_correlation_limit)
@@ -294,9 +295,10 @@ def _per_record(index, per_year: pd.Series) -> np.ndarray:
 def _fill_nee(nee_measured, conditions, index, is_night, config):
     """MDS gap filling of NEE with the configured settings (also scored on artificial gaps)."""
     return gapfill.fill_marginal(
-        nee_measured, conditions, index, rg_tolerance=config.rg_tolerance,
-        tair_tolerance=config.tair_tolerance, vpd_tolerance=config.vpd_tolerance,
-        max_window_days=config.gapfill_max_window_days)
+        nee_measured, conditions, index, is_night=is_night, donors=config.gapfill_donors,
+        rg_tolerance=config.rg_tolerance, tair_tolerance=config.tair_tolerance,
+        vpd_tolerance=config.vpd_tolerance, max_window_days=config.gapfill_max_window_days,
+        min_donors=config.gapfill_min_donors)
 
 
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
@@ -408,7 +410,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                         f"ustar_threshold = {config.ustar_threshold} m s-1 was used there")
 
     filled_drivers = gapfill.fill_drivers(
-        screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days)
+        screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days,
+        interpolation_hours=config.gapfill_interpolation_hours)
     conditions = gapfill.driver_conditions(filled_drivers)
 
     runs = {"central": _per_record(frame.index, central)}
@@ -506,28 +509,10 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                                 "reco_nighttime": n.reco, "gpp_daytime": d.gpp,
                                 "reco_daytime": d.reco}, index=index)
             for name, (_, _, filled, n, d) in outcomes.items()}
-    other = {"tair": "tsoil", "tsoil": "tair"}[temperature]
-    other_reco = None
-    if f"{other}_filled" in timeseries.columns and other in timeseries.columns:
-        try:
-            other_reco = nighttime.partition_nighttime(
-                index, nee_measured, timeseries["nee_filled"].to_numpy(dtype=float),
-                timeseries[other].to_numpy(dtype=float),
-                timeseries[f"{other}_filled"].to_numpy(dtype=float), is_night,
-                e0_window_days=config.e0_window_days,
-                e0_window_step_days=config.e0_window_step_days,
-                e0_min_points=config.e0_min_points,
-                e0_min_temperature_range=config.e0_min_temperature_range,
-                e0_bounds=config.e0_bounds, e0_max_relative_error=config.e0_max_relative_error,
-                e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
-                rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
-                respiration_driver=other).reco
-        except FluxpartError:
-            other_reco = None
     inputs = uncertainty.record_inputs(
         index, runs["central"], runs if len(runs) > 1 else {}, measured, noise, is_night,
         timeseries[f"{temperature}_filled"].to_numpy(dtype=float), night, day.parameters,
-        gapfill_model, rref_window_days=config.rref_window_days, other_driver_reco=other_reco)
+        gapfill_model, rref_window_days=config.rref_window_days)
     percentiles = config.ustar_scenarios
     tables = []
     for table, keys in ((daily, index.normalize()),

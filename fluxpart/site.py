@@ -1,4 +1,4 @@
-"""The measurement site: name and location."""
+"""The measurement site: name, location and canopy height class."""
 
 from __future__ import annotations
 
@@ -7,7 +7,10 @@ from dataclasses import asdict, dataclass
 
 from .errors import ConfigError
 
-__all__ = ["Site"]
+__all__ = ["CANOPIES", "Site"]
+
+#: Canopy height classes of ``[site] canopy``.
+CANOPIES = ("short", "tall")
 
 
 @dataclass(frozen=True)
@@ -25,6 +28,14 @@ class Site:
     utc_offset : float
         Offset of the record's local standard time from UTC [hours], within
         [-12, 14]; e.g. 1.0 for Central European standard time.
+    canopy : {"tall", "short"}
+        Height class of the vegetation around the tower: ``"tall"`` (forest,
+        default) or ``"short"`` (crops, grass, shrubs of a metre or two). It sets
+        the floor of the detected u* threshold (:data:`fluxpart.ustar.CANOPY_FLOORS`):
+        a short canopy keeps little CO2 in the air below the sensor, and its
+        thresholds are often below the 0.1 m s-1 floor used for forests. The
+        default keeps the higher floor, which rejects more calm nights rather than
+        fewer.
 
     Raises
     ------
@@ -37,6 +48,7 @@ class Site:
     latitude: float
     longitude: float
     utc_offset: float = 0.0
+    canopy: str = "tall"
 
     def __post_init__(self):
         for key, low, high in (("latitude", -90.0, 90.0), ("longitude", -180.0, 180.0),
@@ -49,6 +61,9 @@ class Site:
                 raise ConfigError(f"[site] {key} = {value!r} is out of range; "
                                   f"expected a value in [{low:g}, {high:g}]")
             object.__setattr__(self, key, float(value))
+        if self.canopy not in CANOPIES:
+            raise ConfigError(f"[site] canopy = {self.canopy!r}: expected one of "
+                              f"{', '.join(repr(c) for c in CANOPIES)}")
         if not isinstance(self.name, str) or not self.name.strip():
             raise ConfigError(f"[site] name = {self.name!r}: expected a non-empty string")
 

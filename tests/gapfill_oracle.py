@@ -1,17 +1,22 @@
 """Literal per-gap marginal distribution sampling: the test oracle of fluxpart.gapfill.
 
 Written from the text of Reichstein et al. (2005), Global Change Biology 11:1424–1439,
-appendix A, without reusing any code of :mod:`fluxpart.gapfill`: for each gap, in
-time order, walk the steps in the paper's order and take the first that finds
-measured records. The body works with NumPy on that gap's window slice. It is slow
-on purpose (a Python loop over gaps) and exists to check the vectorised module.
+appendix A, and the gap-filling flow chart of its first author (Reichstein, gap-filling
+flow chart, workshop slides 2004), without reusing any code of :mod:`fluxpart.gapfill`:
+for each gap, in time order, walk the steps in the flow chart's order and take the
+first that finds at least ``min_donors`` measured records. The body works with NumPy
+on that gap's window slice. It is slow on purpose (a Python loop over gaps) and
+exists to check the vectorised module.
 
 Conventions shared with the module (its docstring states them): windows in time
 (±K days = ±K·records-per-day records), the diurnal course at d days ± 1 h
-(records i + d·per_day + o, |d| <= K, |o| <= 1 h), widening by 7 days per round
-up to ``max_window_days`` and no further than the diurnal window covering the
-record, full window width reported (2K, or 2K + 1 for the diurnal course),
-population standard deviation, quality A/B/C (m).
+(records i + d·per_day + o, |d| <= K, |o| <= 1 h) on the same day and ±1 day, then
+widening by 7 days per round up to ``max_window_days`` and no further than the
+diurnal window covering the record, full window width reported (2K, or 2K + 1 for
+the diurnal course), population standard deviation, quality A/B/C as in the flow
+chart. With ``is_night`` given, a gap takes donors only from records of its own
+class (night or day; Falge et al. 2001). Short driver gaps (Tair, VPD, Tsoil) are
+interpolated linearly, gap by gap.
 """
 
 import numpy as np
@@ -26,13 +31,13 @@ def _spacing_minutes(index):
 
 
 def _steps_in_order(all_drivers, radiation, max_window_days, record_days):
-    """The paper's flow: 1 at 7, 14; 2 at 7; 3 at 0, 1, 2; then +7 days per round."""
+    """The flow chart: 1 at 7, 14; 2 at 7; 3 at 0, 1; then +7 days per round."""
     sequence = []
     if all_drivers:
         sequence += [(1, 7), (1, 14)]
     if radiation:
         sequence += [(2, 7)]
-    sequence += [(3, 0), (3, 1), (3, 2)]
+    sequence += [(3, 0), (3, 1)]
     widening = 7
     while widening <= max_window_days:
         if all_drivers:
@@ -46,18 +51,24 @@ def _steps_in_order(all_drivers, radiation, max_window_days, record_days):
     return [(step, k) for step, k in sequence if k <= max_window_days]
 
 
-def _quality(step, full_width):
-    if step in (1, 2):
-        return 1 if full_width <= 14 else 2 if full_width <= 28 else 3
-    return 1 if full_width <= 1 else 2 if full_width <= 5 else 3
+def _quality(step, k):
+    """Flow chart: all drivers <= ±14 d and diurnal same day A; Rg ±7 d and diurnal ±1 d B."""
+    if step == 1:
+        return 1 if k <= 14 else 3
+    if step == 2:
+        return 2 if k <= 7 else 3
+    return 1 if k == 0 else 2 if k == 1 else 3
 
 
 def oracle_fill(values, per_day, hour_records, conditions, radiation_condition,
-                max_window_days=70.0):
+                max_window_days=140.0, min_donors=3, is_night=None, fixed=None):
     """Fill one series gap by gap; return value, method, window, count, std, quality arrays.
 
     ``conditions``: list of (driver array, tolerance) for step 1 or None;
-    ``radiation_condition``: (driver array, tolerance) for step 2 or None.
+    ``radiation_condition``: (driver array, tolerance) for step 2 or None;
+    ``is_night``: bool per record to fill night and day gaps from their own class;
+    ``fixed``: bool per record of gaps already filled (interpolated) that stay as
+    they are, method 4 and quality 4.
     """
     y = np.asarray(values, dtype=float)
     n = y.size
@@ -71,13 +82,17 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_condition,
     sequence = _steps_in_order(conditions is not None, radiation_condition is not None,
                                max_window_days, n / per_day)
     for t in np.flatnonzero(~measured):
+        if fixed is not None and fixed[t]:
+            method[t], quality[t] = 4, 4
+            continue
+        donor = measured if is_night is None else measured & (is_night == is_night[t])
         for step, k in sequence:
             if step in (1, 2):
                 pairs = conditions if step == 1 else [radiation_condition]
                 if any(np.isnan(driver[t]) for driver, _ in pairs):
                     continue  # this step needs every one of its drivers at t
                 lo, hi = max(0, t - k * per_day), min(n, t + k * per_day + 1)
-                ok = measured[lo:hi].copy()
+                ok = donor[lo:hi].copy()
                 for driver, tolerance in pairs:
                     # "within ±tolerance of the value at t", bounds in float64
                     ok &= driver[lo:hi] >= driver[t] - tolerance
@@ -88,42 +103,76 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_condition,
                 candidates = (t + np.arange(-k, k + 1)[:, None] * per_day
                               + np.arange(-hour_records, hour_records + 1)[None, :]).ravel()
                 candidates = candidates[(candidates >= 0) & (candidates < n)]
-                picked = y[candidates][measured[candidates]]
+                picked = y[candidates][donor[candidates]]
                 full_width = 2.0 * k + 1.0
-            if picked.size:
+            if picked.size >= min_donors:
                 value[t] = picked.mean()
                 method[t] = step
                 window[t] = full_width
                 count[t] = picked.size
                 std[t] = picked.std()
-                quality[t] = _quality(step, full_width)
+                quality[t] = _quality(step, k)
                 break
     return value, method, window, count, std, quality
 
 
-def oracle_fill_marginal(target, drivers, index, *, rg_tolerance=50.0, tair_tolerance=2.5,
-                         vpd_tolerance=5.0, max_window_days=70.0):
-    """Oracle counterpart of :func:`fluxpart.gapfill.fill_marginal` (same columns)."""
+def oracle_fill_marginal(target, drivers, index, *, is_night=None, rg_tolerance=50.0,
+                         tair_tolerance=2.5, vpd_tolerance=5.0, max_window_days=140.0,
+                         min_donors=3):
+    """Oracle counterpart of :func:`fluxpart.gapfill.fill_marginal` (same columns).
+
+    ``is_night`` None is the single rule (``donors="similar_conditions_only"``).
+    """
     minutes = _spacing_minutes(index)
     per_day, hour_records = 1440 // minutes, 60 // minutes
     rg, tair, vpd = (np.asarray(drivers[c], dtype=float) for c in ("rg", "tair", "vpd"))
     out = oracle_fill(target, per_day, hour_records,
                       [(rg, rg_tolerance), (tair, tair_tolerance), (vpd, vpd_tolerance)],
-                      (rg, rg_tolerance), max_window_days)
+                      (rg, rg_tolerance), max_window_days, min_donors,
+                      None if is_night is None else np.asarray(is_night, dtype=bool))
     names = ("value", "method", "window_days", "count", "std", "quality")
     return pd.DataFrame(dict(zip(names, out, strict=True)), index=index)
 
 
-def oracle_fill_drivers(frame, *, rg_tolerance=50.0, max_window_days=70.0):
+def _interpolate_short_gaps(y, max_records):
+    """Each run of NaN of at most max_records with values on both sides: a straight line."""
+    y = y.copy()
+    fixed = np.zeros(y.size, dtype=bool)
+    t = 0
+    while t < y.size:
+        if not np.isnan(y[t]):
+            t += 1
+            continue
+        end = t
+        while end < y.size and np.isnan(y[end]):
+            end += 1
+        if t > 0 and end < y.size and end - t <= max_records:
+            left, right = y[t - 1], y[end]
+            for i in range(t, end):
+                y[i] = left + (right - left) * (i - (t - 1)) / (end - (t - 1))
+            fixed[t:end] = True
+        t = end
+    return y, fixed
+
+
+def oracle_fill_drivers(frame, *, rg_tolerance=50.0, max_window_days=140.0,
+                        interpolation_hours=3.0):
     """Oracle counterpart of :func:`fluxpart.gapfill.fill_drivers`."""
     minutes = _spacing_minutes(frame.index)
     per_day, hour_records = 1440 // minutes, 60 // minutes
+    max_records = int(interpolation_hours * 60 // minutes)
     rg = frame["rg"].to_numpy(dtype=float)
     out = {}
     for name in [c for c in ("rg", "tair", "vpd", "tsoil") if c in frame.columns]:
         radiation = (rg, rg_tolerance) if name in ("tair", "vpd") else None
-        value, _, _, _, _, quality = oracle_fill(frame[name].to_numpy(dtype=float), per_day,
-                                                 hour_records, None, radiation, max_window_days)
+        y = frame[name].to_numpy(dtype=float)
+        fixed = None
+        if name != "rg":
+            interpolated, fixed = _interpolate_short_gaps(y, max_records)
+        value, _, _, _, _, quality = oracle_fill(y, per_day, hour_records, None, radiation,
+                                                 max_window_days, 1, None, fixed)
+        if fixed is not None:
+            value[fixed] = interpolated[fixed]
         out[f"{name}_filled"] = value
         out[f"{name}_fill_quality"] = quality
     return pd.DataFrame(out, index=frame.index)

@@ -102,6 +102,11 @@ def test_from_toml_missing_and_invalid(tmp_path):
     ({"ustar_method": "movingpoint"}, r"ustar_method = 'movingpoint'.*'moving_point'"),
     ({"ustar_bootstrap_draws": -1}, r"ustar_bootstrap_draws = -1"),
     ({"ustar_scenarios": (5, 42)}, r"ustar_scenarios = \(5, 42\).*percentiles"),
+    ({"ustar_scenarios": (84, 50, 16)}, r"ustar_scenarios = \[84, 50, 16\].*out of order"),
+    ({"ustar_min_threshold": -0.1}, r"ustar_min_threshold = -0.1"),
+    ({"gapfill_donors": "twilight"}, r"gapfill_donors = 'twilight'.*'separate_day_night'"),
+    ({"gapfill_interpolation_hours": -1.0}, r"gapfill_interpolation_hours = -1.0"),
+    ({"gapfill_min_donors": 0}, r"gapfill_min_donors = 0.*whole number"),
     ({"daytime_min_points": 0}, r"daytime_min_points = 0"),
 ])
 def test_bad_values_name_the_setting(overrides, pattern):
@@ -131,7 +136,14 @@ def test_site_accepts_southern_and_western_hemispheres():
     assert site.latitude == -33.5 and site.utc_offset == -4.0
     assert isinstance(site.utc_offset, float)
     assert site.to_dict() == {"name": "Lagoa Seca", "latitude": -33.5, "longitude": -70.6,
-                              "utc_offset": -4.0}
+                              "utc_offset": -4.0, "canopy": "tall"}
+
+
+def test_site_canopy_is_short_or_tall():
+    """[site] canopy accepts "short" or "tall" (default) and names the setting otherwise."""
+    assert Site(name="x", latitude=0.0, longitude=0.0, canopy="short").canopy == "short"
+    with pytest.raises(ConfigError, match=r"\[site\] canopy = 'grass'.*'short', 'tall'"):
+        Site(name="x", latitude=0.0, longitude=0.0, canopy="grass")
 
 
 @pytest.mark.parametrize(("kwargs", "pattern"), [

@@ -29,16 +29,33 @@ from fluxpart.errors import (
     SpacingError,
 )
 from fluxpart.gapfill import (
+    QUALITY_NAMES,
     driver_conditions,
     fill_drivers,
     fill_frame,
-    fill_marginal,
     pass_sequence,
     quality_class,
 )
+from fluxpart.gapfill import fill_marginal as fill_marginal_module
 
 REFERENCE = load_reference("gapfill")
 COLUMNS = ["value", "method", "window_days", "count", "std", "quality"]
+
+
+def fill_marginal(target, drivers, index, **settings_):
+    """fill_marginal with every record in the day class and one donor enough.
+
+    The hand-made examples below count records by hand, all in one class; the tests
+    of the donor rule and of the defaults call ``fill_marginal_module`` directly.
+    """
+    settings_.setdefault("is_night", np.zeros(len(index), dtype=bool))
+    settings_.setdefault("min_donors", 1)
+    return fill_marginal_module(target, drivers, index, **settings_)
+
+
+def _night(drivers):
+    """Night mask of invented drivers: Rg below 10 W m-2 (common practice (m)), else day."""
+    return np.asarray(drivers["rg"] < 10.0)
 
 
 def _index(n, minutes=30, start="2021-03-01"):
@@ -95,17 +112,23 @@ def _assert_same_fill(got, expected):
 @given(seed=st.integers(0, 2**32 - 1), minutes=st.sampled_from([30, 60]),
        n=st.integers(300, 3000), gap_fraction=st.floats(0.05, 0.9),
        driver_gap_fraction=st.floats(0.0, 0.5), long_gap_days=st.sampled_from([0.0, 5.0, 30.0]),
-       max_window_days=st.sampled_from([0.0, 7.0, 30.0, 70.0, np.inf]),
-       rg_tolerance=st.sampled_from([50.0, 20.0]))
+       max_window_days=st.sampled_from([0.0, 7.0, 30.0, 140.0, np.inf]),
+       rg_tolerance=st.sampled_from([50.0, 20.0]), separate=st.booleans(),
+       min_donors=st.sampled_from([1, 3, 6]))
 def test_vectorised_equals_oracle(seed, minutes, n, gap_fraction, driver_gap_fraction,
-                                  long_gap_days, max_window_days, rg_tolerance):
+                                  long_gap_days, max_window_days, rg_tolerance, separate,
+                                  min_donors):
     """Random series with random gaps: fill_marginal and the per-gap oracle agree."""
     rng = np.random.default_rng(seed)
     index, measured, drivers, _, _ = _synthetic(rng, n, minutes, gap_fraction,
                                                 driver_gap_fraction, long_gap_days)
-    settings_ = dict(rg_tolerance=rg_tolerance, max_window_days=max_window_days)
-    got = fill_marginal(measured, drivers, index, **settings_)
-    expected = oracle_fill_marginal(measured, drivers, index, **settings_)
+    settings_ = dict(rg_tolerance=rg_tolerance, max_window_days=max_window_days,
+                     min_donors=min_donors)
+    is_night = _night(drivers) if separate else None
+    got = fill_marginal_module(
+        measured, drivers, index, is_night=is_night, **settings_,
+        donors="separate_day_night" if separate else "similar_conditions_only")
+    expected = oracle_fill_marginal(measured, drivers, index, is_night=is_night, **settings_)
     assert list(got.columns) == COLUMNS
     _assert_same_fill(got, expected)
 
@@ -113,8 +136,9 @@ def test_vectorised_equals_oracle(seed, minutes, n, gap_fraction, driver_gap_fra
 @settings(max_examples=25, deadline=None)
 @given(seed=st.integers(0, 2**32 - 1), minutes=st.sampled_from([30, 60]),
        n=st.integers(300, 2000), driver_gap_fraction=st.floats(0.0, 0.6),
-       with_tsoil=st.booleans())
-def test_fill_drivers_equals_oracle(seed, minutes, n, driver_gap_fraction, with_tsoil):
+       with_tsoil=st.booleans(), interpolation_hours=st.sampled_from([0.0, 1.0, 3.0, 7.5]))
+def test_fill_drivers_equals_oracle(seed, minutes, n, driver_gap_fraction, with_tsoil,
+                                    interpolation_hours):
     """Driver filling agrees with the oracle, column by column."""
     rng = np.random.default_rng(seed)
     index, _, drivers, _, _ = _synthetic(rng, n, minutes, 0.0, driver_gap_fraction)
@@ -123,8 +147,8 @@ def test_fill_drivers_equals_oracle(seed, minutes, n, driver_gap_fraction, with_
         tsoil = 10 + np.sin(np.arange(n) / 48.0)
         tsoil[rng.random(n) < driver_gap_fraction] = np.nan
         frame["tsoil"] = tsoil
-    got = fill_drivers(frame)
-    expected = oracle_fill_drivers(frame)
+    got = fill_drivers(frame, interpolation_hours=interpolation_hours)
+    expected = oracle_fill_drivers(frame, interpolation_hours=interpolation_hours)
     assert list(got.columns) == list(expected.columns)
     for column in got.columns:
         np.testing.assert_allclose(got[column].to_numpy(), expected[column].to_numpy(),
@@ -136,44 +160,61 @@ def test_fill_drivers_equals_oracle(seed, minutes, n, driver_gap_fraction, with_
 def test_defaults_are_the_papers_and_the_configs():
     """Keyword defaults equal the published tolerances and the Config fields."""
     tolerances = REFERENCE["tolerances"]  # Reichstein et al. (2005), appendix A
-    defaults = inspect.signature(fill_marginal).parameters
+    defaults = inspect.signature(fill_marginal_module).parameters
     config = Config()
     for name in ("rg", "tair", "vpd"):
         assert defaults[f"{name}_tolerance"].default == tolerances[name]
         assert getattr(config, f"{name}_tolerance") == tolerances[name]
-    assert defaults["max_window_days"].default == REFERENCE["windows"]["max_window_days"]
+    windows = REFERENCE["windows"]  # Reichstein, gap-filling flow chart, slides 2004
+    assert defaults["max_window_days"].default == windows["max_window_days"]
+    assert config.gapfill_max_window_days == windows["max_window_days"]
+    assert defaults["min_donors"].default == config.gapfill_min_donors
+    assert defaults["donors"].default == config.gapfill_donors == "separate_day_night"
+    hours = inspect.signature(fill_drivers).parameters["interpolation_hours"].default
+    assert hours == config.gapfill_interpolation_hours == 3.0
 
 
 def test_pass_sequence_follows_the_paper():
-    """Steps in the paper's order: 1 at ±7, ±14; 2 at ±7; 3 at ±0, ±1, ±2; then +7 days."""
-    windows = REFERENCE["windows"]  # Reichstein et al. (2005), appendix A
+    """Flow chart order: 1 at ±7, ±14; 2 at ±7; 3 same day, ±1 day; then +7 days to ±140."""
+    windows = REFERENCE["windows"]  # Reichstein, gap-filling flow chart, slides 2004
     first = ([(1, k) for k in windows["all_drivers"]] + [(2, k) for k in windows["radiation_only"]]
              + [(3, k) for k in windows["diurnal_course"]])
     sequence = pass_sequence()
-    assert sequence[:6] == first
+    assert sequence[:5] == first
     step = windows["widening_step_days"]
-    assert sequence[6:9] == [(1, 14 + step), (2, 7 + step), (3, step)]
-    assert max(k for _, k in sequence) == 70
-    assert sequence[-1] == (3, 70)
+    assert sequence[5:8] == [(1, 14 + step), (2, 7 + step), (3, step)]
+    # the driver steps widen up to ±140 days ("|dt| <= 21, 28, ..., 140 days")
+    assert max(k for s, k in sequence if s == 1) == windows["max_window_days"] == 140
+    assert max(k for s, k in sequence if s == 2) == 140
+    assert sequence[-1] == (3, 140)
     assert pass_sequence(all_drivers=False, radiation=False, max_window_days=14) == [
-        (3, 0), (3, 1), (3, 2), (3, 7), (3, 14)]
+        (3, 0), (3, 1), (3, 7), (3, 14)]
     # widening stops once the diurnal window (7 days) covers a 5-day record
     assert pass_sequence(max_window_days=np.inf, record_days=5)[-3:] == [(1, 21), (2, 14), (3, 7)]
 
 
 def test_quality_rule():
-    """A/B/C by method and full window width, Reichstein et al. (2005), appendix (m)."""
+    """A/B/C by method and full window, Reichstein, gap-filling flow chart, slides 2004."""
     rule = REFERENCE["quality"]
     cases = [  # (method, full window [days], expected class)
-        (0, 0.0, 0), (-1, np.nan, -1),
-        (1, 14.0, 1), (2, 14.0, 1), (1, 28.0, 2), (2, 28.0, 2), (1, 42.0, 3), (2, 42.0, 3),
-        (3, 1.0, 1), (3, 3.0, 2), (3, 5.0, 2), (3, 15.0, 3),
-        (1, rule["a_similar_max_days"] + 1, 2), (3, rule["b_diurnal_max_days"] + 2, 3),
+        (0, 0.0, 0), (-1, np.nan, -1), (4, np.nan, 4),
+        # "Rg, T, VPD available with |dt| <= 14 days ... f_qc = 1"
+        (1, 14.0, 1), (1, rule["a_all_drivers_max_days"], 1),
+        # "Rg available with |dt| <= 7 days ... f_qc = 2"
+        (2, rule["b_radiation_max_days"], 2),
+        (1, 42.0, 3), (2, 28.0, 3), (1, 280.0, 3),
+        (3, rule["a_diurnal_max_days"], 1), (3, rule["b_diurnal_max_days"], 2), (3, 15.0, 3),
     ]
     method, window, expected = (np.array(x) for x in zip(*cases, strict=True))
     got = quality_class(method, window)
     assert got.dtype == np.int8
     np.testing.assert_array_equal(got, expected)
+
+
+def test_quality_names_cover_every_code():
+    """Every quality code has a label; the labels another table shows as text."""
+    assert QUALITY_NAMES == {-1: "unfilled", 0: "measured", 1: "A", 2: "B", 3: "C",
+                             4: "interpolated"}
 
 
 # --------------------------------------------------------------------------- known values
@@ -233,14 +274,18 @@ def test_all_drivers_by_hand():
 
 
 def test_all_drivers_fourteen_days():
-    """Step 1 finds nothing within ±7 days but something 10 days away: ±14, quality B."""
+    """Step 1 finds nothing within ±7 days but something 10 days away: ±14, quality A.
+
+    Reichstein, gap-filling flow chart, slides 2004: the all-driver step with
+    |dt| <= 14 days is quality 1 (A).
+    """
     n = 48 * 12
     values = np.full(n, np.nan)
     values[48 * 10] = 2.0  # 10 days after the gap at record 0, same conditions
     out = fill_marginal(values, _drivers(n, 0.0, 5.0, 1.0), _index(n))
     row = out.iloc[0]
     # all records share the drivers, so step 1 at ±14 days fills before the diurnal course
-    assert (row["method"], row["window_days"], row["quality"], row["value"]) == (1, 28.0, 2, 2.0)
+    assert (row["method"], row["window_days"], row["quality"], row["value"]) == (1, 28.0, 1, 2.0)
 
 
 def test_missing_drivers_route_to_later_steps():
@@ -335,7 +380,7 @@ def test_inputs_not_modified():
     copies = target.copy(), drivers.copy(), frame.copy()
     fill_marginal(target, drivers, index)
     fill_drivers(frame)
-    fill_frame(frame)
+    fill_frame(frame, is_night=_night(drivers))
     pd.testing.assert_series_equal(target, copies[0])
     pd.testing.assert_frame_equal(drivers, copies[1])
     pd.testing.assert_frame_equal(frame, copies[2])
@@ -373,19 +418,23 @@ def test_fill_drivers_columns_and_methods():
     frame = pd.DataFrame({"rg": rg, "tair": tair, "vpd": 2 + rg / 200.0,
                           "tsoil": np.full(n, 8.0)}, index=index)
     frame.iloc[60, 0] = np.nan  # an Rg gap: diurnal course, ±2 records that day
-    frame.iloc[70, 1] = np.nan  # a Tair gap where Rg is measured: similar Rg
+    frame.iloc[70, 1] = np.nan  # a short Tair gap: interpolated
+    frame.iloc[100:109, 1] = np.nan  # 4.5 h of Tair missing, where Rg is measured: similar Rg
     frame.iloc[80, 3] = np.nan
     out = fill_drivers(frame)
     assert list(out.columns) == ["rg_filled", "rg_fill_quality", "tair_filled",
                                  "tair_fill_quality", "vpd_filled", "vpd_fill_quality",
                                  "tsoil_filled", "tsoil_fill_quality"]
     assert out["rg_filled"].iloc[60] == pytest.approx(np.mean(rg[[58, 59, 61, 62]]))
-    similar = np.abs(rg - rg[70]) <= 50
-    similar[[60, 70]] = False  # record 60 has no Rg, record 70 no Tair
-    assert out["tair_filled"].iloc[70] == pytest.approx(np.mean(tair[similar]))
+    assert out["tair_filled"].iloc[70] == pytest.approx((tair[69] + tair[71]) / 2)
+    assert out["tair_fill_quality"].iloc[70] == 4
+    similar = np.abs(rg - rg[104]) <= 50
+    similar[[60, 70, *range(100, 109)]] = False  # no Rg at 60, no measured Tair there
+    assert out["tair_filled"].iloc[104] == pytest.approx(np.mean(tair[similar]))
+    assert out["tair_fill_quality"].iloc[104] == 2  # Rg only at ±7 days: B (flow chart)
     assert out["tsoil_filled"].iloc[80] == 8.0
     assert out.notna().all().all()
-    assert set(out["rg_fill_quality"]) == {0, 1}
+    assert set(out["rg_fill_quality"]) == {0, 1}  # Rg is never interpolated
 
 
 def test_driver_conditions_drop_poor_fills():
@@ -399,10 +448,64 @@ def test_driver_conditions_drop_poor_fills():
     filled = fill_drivers(frame)
     conditions = driver_conditions(filled)
     quality = filled["tair_fill_quality"].to_numpy()
-    assert (quality > 1).any()
-    assert conditions["tair"][quality > 1].isna().all()
-    good = quality <= 1
+    assert np.isin(quality, (2, 3)).any()
+    assert conditions["tair"][np.isin(quality, (2, 3))].isna().all()
+    good = np.isin(quality, (0, 1, 4))
     np.testing.assert_array_equal(conditions["tair"][good], filled["tair_filled"][good])
+
+
+def test_driver_conditions_keep_interpolated_values():
+    """A Tair gap of 2 h is interpolated and serves as a similarity condition."""
+    n = 48 * 3
+    tair = 10.0 + np.arange(n) / 10.0
+    tair[50:54] = np.nan
+    frame = pd.DataFrame({"rg": np.zeros(n), "tair": tair, "vpd": np.ones(n)}, index=_index(n))
+    conditions = driver_conditions(fill_drivers(frame))
+    np.testing.assert_allclose(conditions["tair"].iloc[50:54], 10.0 + np.arange(50, 54) / 10.0)
+
+
+@pytest.mark.parametrize("minutes", [30, 60])
+def test_interpolation_limit_in_hours(minutes):
+    """Gaps up to interpolation_hours are interpolated, longer ones are not, at any spacing."""
+    per_hour = 60 // minutes
+    n = 48 * per_hour
+    tair = np.linspace(0.0, 10.0, n)
+    tair[10:10 + 3 * per_hour] = np.nan          # 3 h: interpolated
+    tair[30:30 + 3 * per_hour + 1] = np.nan      # one record more: MDS
+    frame = pd.DataFrame({"rg": np.zeros(n), "tair": tair, "vpd": np.ones(n)},
+                         index=_index(n, minutes))
+    quality = fill_drivers(frame)["tair_fill_quality"].to_numpy()
+    assert (quality[10:10 + 3 * per_hour] == 4).all()
+    assert (quality[30:30 + 3 * per_hour + 1] != 4).all()
+    assert (fill_drivers(frame, interpolation_hours=0)["tair_fill_quality"] != 4).all()
+
+
+def test_interpolation_beats_radiation_similarity_on_short_gaps():
+    """Short Tair gaps of the demo: interpolation RMSE well below the Rg-similarity fill.
+
+    Known-truth check on the invented demo: hide 2–6 records (1–3 h) of measured
+    Tair, fill with and without interpolation, and compare with the hidden values.
+    Air temperature changes by a few kelvin within hours (common practice), while
+    records with similar Rg within ±7 days mix the weather of other days.
+    """
+    from fluxpart import demo
+
+    frame, _ = demo.site_year(seed=3, gaps=False, spikes=False)
+    rng = np.random.default_rng(3)
+    tair = frame["tair"].to_numpy().copy()
+    starts = rng.choice(np.arange(10, tair.size - 20), size=300, replace=False)
+    hidden = np.zeros(tair.size, dtype=bool)
+    for start, length in zip(starts, rng.integers(2, 7, starts.size), strict=True):
+        hidden[start:start + length] = True
+    gappy = frame.assign(tair=np.where(hidden, np.nan, tair))
+    errors = {}
+    for hours in (3.0, 0.0):
+        filled = fill_drivers(gappy, interpolation_hours=hours)["tair_filled"].to_numpy()
+        errors[hours] = np.sqrt(np.mean((filled[hidden] - tair[hidden]) ** 2))
+    print(f"Tair short gaps: RMSE interpolated {errors[3.0]:.2f} K, Rg similarity "
+          f"{errors[0.0]:.2f} K")
+    assert errors[3.0] < 0.5 * errors[0.0]
+    assert errors[3.0] < 1.5
 
 
 def test_fill_frame_composes_drivers_and_flux():
@@ -410,8 +513,10 @@ def test_fill_frame_composes_drivers_and_flux():
     rng = np.random.default_rng(5)
     index, measured, drivers, _, _ = _synthetic(rng, 1000, 30)
     frame = drivers.assign(nee=measured)
-    out = fill_frame(frame)
-    expected = fill_marginal(measured, driver_conditions(fill_drivers(frame)), index)
+    is_night = _night(drivers)
+    out = fill_frame(frame, is_night=is_night)
+    expected = fill_marginal_module(measured, driver_conditions(fill_drivers(frame)), index,
+                                    is_night=is_night)
     np.testing.assert_array_equal(out["nee_filled"], expected["value"])
     np.testing.assert_array_equal(out["nee_fill_quality"], expected["quality"])
     assert {"nee_fill_method", "nee_fill_window_days", "nee_fill_count", "nee_fill_std",
@@ -436,7 +541,7 @@ def test_artificial_gaps_recover_the_flux():
                                                         driver_gap_fraction=0.0)
     hidden = ~np.isnan(measured) & (rng.random(n) < 0.2)
     thinned = np.where(hidden, np.nan, measured)
-    out = fill_marginal(thinned, drivers, index)
+    out = fill_marginal_module(thinned, drivers, index, is_night=_night(drivers))
     error = out["value"].to_numpy()[hidden] - noisy[hidden]
     rmse, bias = np.sqrt(np.mean(error**2)), np.mean(error)
     print(f"artificial gaps: n={hidden.sum()}, RMSE={rmse:.2f}, bias={bias:+.3f} µmol m-2 s-1")
@@ -506,10 +611,81 @@ def test_artificial_gaps_on_the_demo_site_year():
     target = measured.copy()
     target[hidden] = np.nan
     drivers = driver_conditions(fill_drivers(frame))
-    filled = fill_marginal(target, drivers, frame.index)["value"].to_numpy()
+    is_night = _demo_night(frame)
+    filled = fill_marginal_module(target, drivers, frame.index,
+                                  is_night=is_night)["value"].to_numpy()
     error = filled[hidden] - measured[hidden]
     rmse, bias = np.sqrt(np.mean(error**2)), np.mean(error)
     print(f"demo artificial gaps: n={hidden.size}, RMSE={rmse:.2f}, bias={bias:+.3f}")
     noise_floor = np.sqrt(np.mean((0.5 + 0.15 * np.abs(truth["nee"].to_numpy()[hidden]))**2))
     assert 0.9 * noise_floor < rmse < 2.0
     assert abs(bias) < 0.15
+
+
+def _demo_night(frame):
+    """The pipeline's night mask for the demo site: Rg < 10 W m-2, else no sun."""
+    from fluxpart import demo, solar
+
+    geometry = solar.solar_geometry(frame.index, demo.site(), interval_minutes=30)
+    return solar.night_mask(frame["rg"].to_numpy(), geometry["potential_radiation"].to_numpy(),
+                            10.0)
+
+
+def test_night_gaps_take_night_donors_only():
+    """Separate donors: a night gap ignores twilight records with photosynthesis (issue 11).
+
+    Falge et al. (2001), Agric. For. Meteorol. 107:43–69, fill day and night
+    separately. At Rg = 0 a twilight record at Rg = 30 W m-2 is within the 50 W m-2
+    tolerance but belongs to the day class.
+    """
+    n = 48
+    values = np.full(n, np.nan)
+    rg = np.zeros(n)
+    night_records, twilight = [2, 4, 6], [12, 14, 16]
+    values[night_records] = 3.0            # respiration only
+    values[twilight] = -1.0                # twilight: photosynthesis under way
+    rg[twilight] = 30.0
+    is_night = rg < 10.0
+    drivers = _drivers(n, rg, 10.0, 2.0)
+    gap = 9
+    separate = fill_marginal_module(values, drivers, _index(n), is_night=is_night)
+    single = fill_marginal_module(values, drivers, _index(n),
+                                  donors="similar_conditions_only")
+    assert separate["value"].iloc[gap] == pytest.approx(3.0)
+    assert single["value"].iloc[gap] == pytest.approx(1.0)  # (3 x 3 - 3 x 1) / 6
+    # and the symmetric case: a twilight (day) gap does not take night records
+    values[20] = np.nan
+    rg[20] = 25.0
+    out = fill_marginal_module(values, _drivers(n, rg, 10.0, 2.0), _index(n),
+                               is_night=rg < 10.0)
+    assert out["value"].iloc[20] == pytest.approx(-1.0)
+
+
+def test_min_donors_pushes_gaps_to_wider_windows():
+    """With fewer similar records than min_donors, the gap falls to the next pass."""
+    n = 48 * 10
+    values = np.full(n, np.nan)
+    values[[100, 102]] = 2.0              # two records within ±7 days (3 needed)
+    values[48 * 9 + 20] = 8.0             # a third one 9 days away: ±14 fills
+    drivers = _drivers(n, 0.0, 5.0, 1.0)
+    out = fill_marginal_module(values, drivers, _index(n), is_night=np.zeros(n, dtype=bool))
+    assert (out["method"].iloc[0], out["window_days"].iloc[0], out["count"].iloc[0]) == (1, 28.0,
+                                                                                        3)
+    assert out["value"].iloc[0] == pytest.approx(4.0)
+    one = fill_marginal(values, drivers, _index(n))          # min_donors = 1
+    assert (one["window_days"].iloc[0], one["count"].iloc[0]) == (14.0, 2)
+
+
+def test_donor_rule_settings_are_checked():
+    """An unknown donor rule, a missing night mask or a bad minimum name the setting."""
+    n = 10
+    with pytest.raises(ConfigError, match="gapfill_donors"):
+        fill_marginal_module(np.ones(n), _drivers(n), _index(n), donors="twilight")
+    with pytest.raises(FluxpartError, match="is_night"):
+        fill_marginal_module(np.ones(n), _drivers(n), _index(n))
+    with pytest.raises(FluxpartError, match="is_night: 9 values"):
+        fill_marginal_module(np.ones(n), _drivers(n), _index(n), is_night=np.zeros(9, bool))
+    with pytest.raises(ConfigError, match="gapfill_min_donors"):
+        fill_marginal(np.ones(n), _drivers(n), _index(n), min_donors=0)
+    with pytest.raises(ConfigError, match="gapfill_interpolation_hours"):
+        fill_drivers(_drivers(n).set_index(_index(n)), interpolation_hours=-1.0)

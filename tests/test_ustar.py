@@ -289,3 +289,31 @@ def test_invalid_settings_and_inputs():
         detect_threshold(np.arange(len(nee)), nee, friction, tair, is_night, 48.0)
     with pytest.raises(FluxpartError, match="seasons"):
         moving_point_threshold(nee, friction, tair, is_night, seasons["year"])
+
+
+def test_short_canopy_floor_keeps_a_low_threshold():
+    """A planted 0.06 m s-1 threshold: the short-canopy floor keeps it, the tall one hides it.
+
+    Floors 0.1 m s-1 (tall) and 0.01 m s-1 (short), Papale et al. (2006) (m), in
+    reference/ustar.toml; the record is invented (known-truth recovery).
+    """
+    floors = REFERENCE["canopy_floor"]
+    assert ustar.CANOPY_FLOORS == {"short": floors["short"], "tall": floors["tall"]}
+    index, nee, friction, tair, is_night = _night_record(21, damped=False)
+    # a calm site: u* scaled down (mean 0.14 m s-1), NEE damped below 0.06 m s-1
+    friction = 0.4 * friction
+    true = nee
+    nee = true * np.minimum(1.0, friction / 0.06)
+    record = (index, nee, friction, tair, is_night)
+    short = _run(record, min_threshold=ustar.CANOPY_FLOORS["short"], draws=0).annual.iloc[0]
+    tall = _run(record, min_threshold=ustar.CANOPY_FLOORS["tall"], draws=0).annual.iloc[0]
+    assert abs(short["threshold"] - 0.06) <= 0.03
+    assert tall["threshold"] == 0.1
+
+
+def test_records_per_class_setting_is_checked():
+    """min_records_per_class must be a whole number >= 1."""
+    index, nee, friction, tair, is_night = _night_record(23, coverage=0.2)
+    seasons = assign_seasons(index, 48.0)
+    with pytest.raises(ConfigError, match="min_records_per_class"):
+        moving_point_threshold(nee, friction, tair, is_night, seasons, min_records_per_class=0)

@@ -6,6 +6,11 @@ the time of :func:`fluxpart.gapfill.fill_frame` on one year of 30-min records
 ``tests/gapfill_oracle.py``, their ratio, the peak memory of one fill (tracemalloc)
 and, to show that time and memory grow linearly, the same for ten years.
 
+With ``--accuracy`` it prints instead the known-truth figures of issue 11: the RMSE
+of Tair, VPD and Tsoil fills on artificial gaps of 1–3 h (interpolation against the
+radiation-similarity fill), and the annual NEE error of ``fluxpart.process`` on the
+demo over seeds 0–5 for both donor rules (about a minute per rule).
+
 The data are the invented demo site of :func:`fluxpart.demo.site_year` with night
 records of low u* removed as the u* filter would (about 40 % gaps), or an invented
 year made here when the demo module is not available.
@@ -70,9 +75,69 @@ def _site_years(years: int, seed: int) -> tuple[pd.DataFrame, str]:
         "fluxpart.demo.site_year, night records with u* < 0.18 m s-1 removed"
 
 
-def _oracle_frame(frame: pd.DataFrame) -> pd.DataFrame:
+def _night(frame: pd.DataFrame) -> np.ndarray:
+    """Night as the pipeline sees it: Rg below 10 W m-2, or no sun where Rg is missing."""
+    from fluxpart import demo, solar
+
+    geometry = solar.solar_geometry(frame.index, demo.site(), interval_minutes=30)
+    return solar.night_mask(frame["rg"].to_numpy(), geometry["potential_radiation"].to_numpy(),
+                            _NIGHT_RG)
+
+
+def _oracle_frame(frame: pd.DataFrame, is_night) -> pd.DataFrame:
     drivers = oracle_fill_drivers(frame)
-    return oracle_fill_marginal(frame["nee"], gapfill.driver_conditions(drivers), frame.index)
+    return oracle_fill_marginal(frame["nee"], gapfill.driver_conditions(drivers), frame.index,
+                                is_night=is_night)
+
+
+def _driver_accuracy(seeds=range(6), gaps_per_year=300) -> None:
+    """RMSE of driver fills on artificial 1–3 h gaps of complete demo years."""
+    from fluxpart import demo
+
+    errors = {(name, hours): [] for name in ("tair", "vpd", "tsoil") for hours in (3.0, 0.0)}
+    for seed in seeds:
+        frame, _ = demo.site_year(seed=seed, gaps=False, spikes=False)
+        rng = np.random.default_rng(seed)
+        starts = rng.choice(np.arange(10, len(frame) - 20), size=gaps_per_year, replace=False)
+        hidden = np.zeros(len(frame), dtype=bool)
+        for start, length in zip(starts, rng.integers(2, 7, starts.size), strict=True):
+            hidden[start:start + length] = True
+        gappy = frame.copy()
+        for name in ("tair", "vpd", "tsoil"):
+            gappy.loc[hidden, name] = np.nan
+        for hours in (3.0, 0.0):
+            filled = gapfill.fill_drivers(gappy, interpolation_hours=hours)
+            for name in ("tair", "vpd", "tsoil"):
+                error = filled[f"{name}_filled"].to_numpy()[hidden] - frame[name].to_numpy()[hidden]
+                errors[(name, hours)].append(error)
+    print(f"driver fills on artificial gaps of 1-3 h (demo seeds {list(seeds)}, "
+          f"{gaps_per_year} gaps per year):")
+    for name, unit in (("tair", "K"), ("vpd", "hPa"), ("tsoil", "K")):
+        parts = []
+        for hours, label in ((3.0, "interpolated"), (0.0, "MDS only")):
+            error = np.concatenate(errors[(name, hours)])
+            parts.append(f"{label} RMSE {np.sqrt(np.mean(error**2)):.2f} {unit}, "
+                         f"bias {np.mean(error):+.2f}")
+        print(f"  {name}: " + "; ".join(parts))
+
+
+def _nee_accuracy(seeds=range(6)) -> None:
+    """Annual NEE error of the whole pipeline on the demo for both donor rules."""
+    import fluxpart
+    from fluxpart import demo
+
+    print(f"annual NEE error [g C m-2] of fluxpart.process on demo seeds {list(seeds)}:")
+    for rule in gapfill.DONOR_RULES:
+        errors = []
+        for seed in seeds:
+            frame, truth = demo.site_year(seed)
+            result = fluxpart.process(frame, demo.site(), fluxpart.Config(
+                gapfill_donors=rule, ustar_bootstrap_draws=0))
+            errors.append(demo.compare_with_truth(result.annual, truth)
+                          .xs("nee", level="estimate_of")["error"].iloc[0])
+        errors = np.array(errors)
+        print(f"  {rule}: " + " ".join(f"{e:+.1f}" for e in errors)
+              + f"; median {np.median(errors):+.1f}, worst |error| {np.max(np.abs(errors)):.1f}")
 
 
 def _times(function, runs: int) -> list[float]:
@@ -98,7 +163,13 @@ def main(argv=None) -> None:
     parser.add_argument("--oracle-runs", type=int, default=5, help="timed runs of the oracle")
     parser.add_argument("--seed", type=int, default=0)
     parser.add_argument("--skip-ten-years", action="store_true")
+    parser.add_argument("--accuracy", action="store_true",
+                        help="print the known-truth accuracy figures instead of timings")
     args = parser.parse_args(argv)
+    if args.accuracy:
+        _driver_accuracy()
+        _nee_accuracy()
+        return
 
     frame, source = _site_years(1, args.seed)
     nee_gaps = frame["nee"].isna().mean()
@@ -107,16 +178,17 @@ def main(argv=None) -> None:
           f"NEE gaps {nee_gaps:.1%}, driver gaps "
           + ", ".join(f"{c} {frame[c].isna().mean():.1%}" for c in frame.columns if c != "nee"))
 
-    filled = gapfill.fill_frame(frame)  # warm-up, and the result to compare
-    oracle = _oracle_frame(frame)
+    is_night = _night(frame)
+    filled = gapfill.fill_frame(frame, is_night=is_night)  # warm-up, and the result to compare
+    oracle = _oracle_frame(frame, is_night)
     np.testing.assert_allclose(filled["nee_filled"], oracle["value"], rtol=1e-9, atol=1e-12)
     np.testing.assert_array_equal(filled["nee_fill_quality"], oracle["quality"])
     print("vectorised and oracle fills agree (rtol 1e-9; methods, counts, quality equal)")
     print("NEE fill methods: " + ", ".join(
         f"{m}: {c}" for m, c in filled["nee_fill_method"].value_counts().sort_index().items()))
 
-    fast = _times(lambda: gapfill.fill_frame(frame), args.runs)
-    slow = _times(lambda: _oracle_frame(frame), args.oracle_runs)
+    fast = _times(lambda: gapfill.fill_frame(frame, is_night=is_night), args.runs)
+    slow = _times(lambda: _oracle_frame(frame, is_night), args.oracle_runs)
     print(f"complete gap filling (drivers + NEE), one site-year, median of {args.runs} runs: "
           f"{statistics.median(fast):.4f} s (min {min(fast):.4f} s)")
     print(f"oracle (per-gap loop), median of {args.oracle_runs} runs: "
@@ -124,15 +196,15 @@ def main(argv=None) -> None:
     print(f"speed ratio oracle / vectorised: median {statistics.median(slow) / statistics.median(fast):.1f}x, "
           f"min {min(slow) / min(fast):.1f}x")
     print(f"peak memory of one vectorised fill (tracemalloc): "
-          f"{_peak_memory(lambda: gapfill.fill_frame(frame)):.1f} MiB")
+          f"{_peak_memory(lambda: gapfill.fill_frame(frame, is_night=is_night)):.1f} MiB")
 
     if not args.skip_ten_years:
         decade, _ = _site_years(10, args.seed)
-        gapfill.fill_frame(decade.iloc[:1000])
-        ten = _times(lambda: gapfill.fill_frame(decade), 3)
+        night = _night(decade)
+        ten = _times(lambda: gapfill.fill_frame(decade, is_night=night), 3)
         print(f"ten years ({len(decade)} records), median of 3 runs: "
               f"{statistics.median(ten):.3f} s; peak memory "
-              f"{_peak_memory(lambda: gapfill.fill_frame(decade)):.1f} MiB")
+              f"{_peak_memory(lambda: gapfill.fill_frame(decade, is_night=night)):.1f} MiB")
 
 
 if __name__ == "__main__":
