@@ -19,41 +19,21 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from .budget import GRAMS_CARBON_PER_UMOL
 from .errors import FluxpartError, ImplausibleValueError, MissingColumnError
+from .schema import AUDIT_COLUMNS
 from .screening import REASON_CODES
+from .units import GRAMS_CARBON_PER_UMOL
 
 __all__ = ["AUDIT_COLUMNS", "QUALITY_NAMES", "audit_trail"]
 
 #: Fill-quality code of ``nee_fill_quality`` -> audit column.
 QUALITY_NAMES: dict[int, str] = {0: "nee_measured", 1: "nee_filled_a", 2: "nee_filled_b",
                                  3: "nee_filled_c", -1: "nee_unfilled"}
-
-_CARBON = "g C m-2"
-
+#: Fill-quality code -> the label of the string-coded ``nee_fill_quality`` column.
+_QUALITY_LABELS: dict[int, str] = {0: "measured", 1: "A", 2: "B", 3: "C", -1: "unfilled"}
 
 def _reason_column(code: int, name: str) -> str:
     return "screening_kept" if code == 0 else f"rejected_{name}"
-
-
-#: Unit and description of every column of the audit table.
-AUDIT_COLUMNS: dict[str, tuple[str, str]] = {
-    "year": ("", "calendar year of the interval starts"),
-    "records_present": ("1", "records (rows) of the year in the timeseries"),
-    **{_reason_column(code, name): ("1", "records whose NEE passed screening and the u* filter"
-                                    if code == 0 else
-                                    f"records whose NEE was first rejected as {name.replace('_', ' ')}")
-       for code, name in REASON_CODES.items()},
-    "nee_measured": ("1", "records whose budget NEE is the measured value"),
-    "nee_filled_a": ("1", "records whose NEE was gap-filled with quality A"),
-    "nee_filled_b": ("1", "records whose NEE was gap-filled with quality B"),
-    "nee_filled_c": ("1", "records whose NEE was gap-filled with quality C"),
-    "nee_unfilled": ("1", "records whose NEE could not be filled"),
-    "abs_nee_measured": (_CARBON, "sum of |NEE| over measured records"),
-    "abs_nee_filled": (_CARBON, "sum of |NEE| over gap-filled records"),
-    "abs_nee_share_measured": ("1", "share of the sum of |NEE| from measured records"),
-    "abs_nee_share_filled": ("1", "share of the sum of |NEE| from gap-filled records"),
-}
 
 
 def _interval_seconds(index: pd.DatetimeIndex) -> float:
@@ -63,8 +43,14 @@ def _interval_seconds(index: pd.DatetimeIndex) -> float:
     return float(steps.min())
 
 
-def _codes(timeseries: pd.DataFrame, column: str, valid) -> np.ndarray:
-    values = timeseries[column].to_numpy(dtype=float, na_value=np.nan)
+def _codes(timeseries: pd.DataFrame, column: str, valid, labels) -> np.ndarray:
+    """Integer codes of `column`, given as codes or as their labels (code -> label)."""
+    series = timeseries[column]
+    if not (pd.api.types.is_numeric_dtype(series) or pd.api.types.is_bool_dtype(series)):
+        code_of = {label: code for code, label in labels.items()}
+        series = series.astype(object).map(lambda label: code_of.get(label, label))
+        series = pd.to_numeric(series, errors="coerce")
+    values = series.to_numpy(dtype=float, na_value=np.nan)
     bad = np.flatnonzero(~np.isin(values, list(valid)))
     if bad.size:
         row = int(bad[0])
@@ -81,9 +67,10 @@ def audit_trail(timeseries: pd.DataFrame) -> pd.DataFrame:
     ----------
     timeseries : pandas.DataFrame
         The pipeline's timeseries on a DatetimeIndex of interval starts (local
-        standard time): ``rejection_reason`` (int codes of
-        :data:`fluxpart.screening.REASON_CODES`), ``nee_fill_quality`` (0 measured,
-        1/2/3 filled A/B/C, -1 unfilled) and ``nee_filled`` [µmol m-2 s-1].
+        standard time): ``rejection_reason`` (the int codes of
+        :data:`fluxpart.screening.REASON_CODES` or their names), ``nee_fill_quality``
+        (0 measured, 1/2/3 filled A/B/C, -1 unfilled, or the labels ``"measured"``,
+        ``"A"``, ``"B"``, ``"C"``, ``"unfilled"``) and ``nee_filled`` [µmol m-2 s-1].
 
     Returns
     -------
@@ -123,8 +110,8 @@ def audit_trail(timeseries: pd.DataFrame) -> pd.DataFrame:
         raise MissingColumnError(f"audit: timeseries lacks column(s) "
                                  f"{', '.join(map(repr, absent))}")
     seconds = _interval_seconds(timeseries.index)
-    reason = _codes(timeseries, "rejection_reason", REASON_CODES)
-    quality = _codes(timeseries, "nee_fill_quality", QUALITY_NAMES)
+    reason = _codes(timeseries, "rejection_reason", REASON_CODES, REASON_CODES)
+    quality = _codes(timeseries, "nee_fill_quality", QUALITY_NAMES, _QUALITY_LABELS)
     nee = timeseries["nee_filled"].to_numpy(dtype=float, na_value=np.nan)
     carbon = np.where(np.isfinite(nee), np.abs(nee), 0.0) * seconds * GRAMS_CARBON_PER_UMOL
 

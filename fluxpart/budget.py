@@ -18,7 +18,6 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from .constants import CARBON_MOLAR_MASS
 from .errors import (
     FluxpartError,
     ImplausibleValueError,
@@ -26,6 +25,10 @@ from .errors import (
     MissingColumnError,
     SpacingError,
 )
+
+# The unit conversions live in fluxpart.units; re-exported here for existing callers.
+from .units import GRAMS_CARBON_PER_UMOL, flux_to_carbon
+from .units import interval_seconds as _interval_seconds
 
 __all__ = [
     "COVERAGE_UNITS",
@@ -35,10 +38,6 @@ __all__ = [
     "default_flux_names",
     "flux_to_carbon",
 ]
-
-#: Grams of carbon per micromole of CO2 (one C atom per molecule) [g µmol-1];
-#: 12.011 g mol-1 x 1e-6 mol µmol-1 (IUPAC standard atomic weight of carbon).
-GRAMS_CARBON_PER_UMOL = CARBON_MOLAR_MASS * 1e-6
 
 #: Units of the coverage columns of every budget table.
 COVERAGE_UNITS = {
@@ -92,39 +91,6 @@ class Budgets:
     monthly: pd.DataFrame
     annual: pd.DataFrame
     units: dict
-
-
-def flux_to_carbon(values, interval_minutes):
-    """Convert CO2 fluxes per record into grams of carbon per record.
-
-    Parameters
-    ----------
-    values : array_like or pandas.Series
-        Flux, each the mean over its record [µmol m-2 s-1].
-    interval_minutes : int
-        Record length [min], e.g. 30 or 60.
-
-    Returns
-    -------
-    numpy.ndarray or pandas.Series
-        Carbon per record [g C m-2]: ``value x interval seconds x 12.011e-6``; a
-        Series (same index) for a Series input. NaN stays NaN.
-
-    Raises
-    ------
-    SpacingError
-        If `interval_minutes` is not a positive whole number of minutes dividing a day.
-
-    Notes
-    -----
-    One CO2 molecule carries one carbon atom, so µmol CO2 = µmol C; the standard
-    atomic weight of carbon is 12.011 g mol-1 (IUPAC conventional value). For
-    example 1 µmol m-2 s-1 over 30 min is ``1800 x 12.011e-6 = 0.0216198`` g C m-2.
-    """
-    factor = _interval_seconds(interval_minutes) * GRAMS_CARBON_PER_UMOL
-    if isinstance(values, pd.Series):
-        return values.astype(float) * factor
-    return np.asarray(values, dtype=float) * factor
 
 
 def default_flux_names(columns) -> dict[str, str]:
@@ -261,16 +227,6 @@ def aggregate(timeseries: pd.DataFrame, interval_minutes, *, fluxes=None,
 # --------------------------------------------------------------------------- #
 # Helpers
 # --------------------------------------------------------------------------- #
-def _interval_seconds(interval_minutes) -> float:
-    if (isinstance(interval_minutes, bool)
-            or not isinstance(interval_minutes, (int, float, np.integer, np.floating))
-            or interval_minutes <= 0 or interval_minutes != int(interval_minutes)
-            or _MINUTES_PER_DAY % int(interval_minutes) != 0):
-        raise SpacingError(f"interval_minutes = {interval_minutes!r}: expected a whole number "
-                           "of minutes that divides a day, e.g. 30 or 60")
-    return float(interval_minutes) * 60.0
-
-
 def _check_spacing(index: pd.DatetimeIndex, seconds: float) -> None:
     if len(index) == 0:
         return

@@ -19,6 +19,8 @@ settings to the stage functions and assembles their outputs.
 
 from __future__ import annotations
 
+import datetime
+import warnings as _warnings
 from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -26,11 +28,22 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from . import agreement, audit, budget, gapfill, screening, solar, uncertainty, ustar
+from . import (
+    agreement,
+    audit,
+    budget,
+    gapfill,
+    schema,
+    screening,
+    solar,
+    uncertainty,
+    ustar,
+)
 from .config import Config
 from .errors import (
     ConfigError,
     FluxpartError,
+    FluxpartWarning,
     InsufficientDataError,
     MissingColumnError,
     SpacingError,
@@ -45,6 +58,16 @@ _BUDGET_FLUXES = {"nee_filled": "nee", "gpp_nighttime": "gpp_nighttime",
                   "reco_nighttime": "reco_nighttime", "gpp_daytime": "gpp_daytime",
                   "reco_daytime": "reco_daytime"}
 _REASON_LOW_USTAR = {name: code for code, name in screening.REASON_CODES.items()}["low_ustar"]
+#: Labels of the fill-quality codes of gap filling (its own mapping where it has one).
+_QUALITY_LABELS = getattr(gapfill, "QUALITY_NAMES", None) or {
+    gapfill.QUALITY_UNFILLED: "unfilled", gapfill.QUALITY_MEASURED: "measured",
+    gapfill.QUALITY_A: "A", gapfill.QUALITY_B: "B", gapfill.QUALITY_C: "C"}
+#: Labels of the fill-method codes of gap filling.
+_METHOD_LABELS = {gapfill.METHOD_UNFILLED: "unfilled", gapfill.METHOD_MEASURED: "measured",
+                  gapfill.METHOD_ALL_DRIVERS: "similar_drivers",
+                  gapfill.METHOD_RADIATION: "similar_radiation",
+                  gapfill.METHOD_DIURNAL_COURSE: "diurnal_course",
+                  getattr(gapfill, "METHOD_INTERPOLATED", 4): "interpolated"}
 
 
 @dataclass(frozen=True)
@@ -61,7 +84,10 @@ class Result:
         One row per interval (start-stamped DatetimeIndex ``time``): the canonical
         inputs, solar geometry, screening flags, filled drivers, ``nee_filled`` and
         its fill columns, ``gpp_nighttime``, ``reco_nighttime``, ``gpp_daytime``,
-        ``reco_daytime`` [µmol m-2 s-1]. Units: :func:`fluxpart.schema.units`.
+        ``reco_daytime`` [µmol m-2 s-1]. ``rejection_reason``, ``nee_fill_method``
+        and the ``*_fill_quality`` columns are labelled categoricals (``"measured"``,
+        ``"A"``, ``"B"``, ``"C"``, ``"unfilled"``; reason names). Units and
+        descriptions: :func:`fluxpart.schema.describe`.
     daily, monthly, annual : pandas.DataFrame
         Budgets [g C m-2 per period] with coverage; ``annual`` is indexed by year
         and carries ``ustar_threshold`` [m s-1] and the u* scenario spread.
@@ -77,7 +103,8 @@ class Result:
         Records per screening reason.
     warnings : tuple of str
         Things a reader of the budget must know (fall-backs used, methods that
-        disagree, partial years).
+        disagree, partial years); :func:`process` also issues each through
+        :func:`warnings.warn` as a :class:`~fluxpart.errors.FluxpartWarning`.
     provenance : dict
         Input file(s) and their SHA-256 where known, the screening thresholds.
     """
@@ -94,6 +121,31 @@ class Result:
     screening_counts: pd.Series
     warnings: tuple = ()
     provenance: dict = field(default_factory=dict)
+
+    def __repr__(self) -> str:
+        years = ", ".join(str(year) for year in self.annual.index)
+        return (f"<fluxpart.Result {self.site.name!r}, {len(self.timeseries)} records, "
+                f"years {years or 'none'}, {len(self.warnings)} warning(s)>")
+
+    def _repr_html_(self) -> str:
+        import html
+
+        columns = [c for c in ("nee", "gpp_nighttime", "gpp_daytime", "reco_nighttime",
+                               "reco_daytime", "share_measured") if c in self.annual.columns]
+        table = self.annual[columns].to_html(float_format=lambda v: f"{v:.1f}")
+        notes = "".join(f"<li>{html.escape(text)}</li>" for text in self.warnings)
+        return (f"<p><b>fluxpart.Result</b> {html.escape(self.site.name)}: "
+                f"{len(self.timeseries)} records; annual sums [g C m-2]</p>{table}"
+                + (f"<ul>{notes}</ul>" if notes else ""))
+
+    def to_xarray(self):
+        """Return the half-hourly and daily series as a CF-1.10 :class:`xarray.Dataset`.
+
+        Needs the ``netcdf`` extra; see :func:`fluxpart.export.to_xarray`.
+        """
+        from .export import to_xarray
+
+        return to_xarray(self)
 
     def tables(self) -> dict:
         """Every table of the result by its file name in a result folder."""
@@ -173,10 +225,6 @@ def _validate(frame: pd.DataFrame) -> int:
     if missing:
         raise MissingColumnError(f"required column(s) {', '.join(map(repr, missing))} missing; "
                                  f"the frame has: {', '.join(map(str, frame.columns))}")
-    unknown = [c for c in frame.columns if c not in VARIABLES]
-    if unknown:
-        raise MissingColumnError(f"column(s) {', '.join(map(repr, unknown))} are not canonical "
-                                 f"variables; valid names: {', '.join(VARIABLES)}")
     for name in frame.columns:
         if not pd.api.types.is_numeric_dtype(frame[name]):
             raise FluxpartError(f"column {name!r} has dtype {frame[name].dtype}; expected numbers")
@@ -198,6 +246,38 @@ def _validate(frame: pd.DataFrame) -> int:
                            f"rows for missing stamps); found a step of "
                            f"{steps[min(row, len(steps)) - 1] / 60:g} minutes at row {row}")
     return int(steps[0] // 60)
+
+
+def _prepare(frame, site: Site) -> tuple:
+    """Bring a caller's frame to the canonical form; return it and notes on what changed.
+
+    A tz-aware index is converted to the site's local standard time (UTC +
+    ``site.utc_offset``, no daylight saving) and made tz-naive; columns that are not
+    canonical variables are left out (the caller's frame is not modified).
+    """
+    notes = []
+    if not isinstance(frame, pd.DataFrame):
+        return frame, notes
+    if isinstance(frame.index, pd.DatetimeIndex) and frame.index.tz is not None:
+        zone = datetime.timezone(datetime.timedelta(hours=site.utc_offset))
+        notes.append(f"the index carried the time zone {frame.index.tz}; converted to local "
+                     f"standard time UTC{site.utc_offset:+g} h (Site.utc_offset)")
+        frame = frame.set_axis(frame.index.tz_convert(zone).tz_localize(None), axis=0)
+    unknown = [c for c in frame.columns if c not in VARIABLES]
+    if unknown:
+        notes.append(f"column(s) {', '.join(map(repr, map(str, unknown)))} are not canonical "
+                     f"variables and were ignored (canonical: {', '.join(VARIABLES)})")
+        frame = frame.drop(columns=unknown)
+    return frame, notes
+
+
+def _labelled(timeseries: pd.DataFrame) -> pd.DataFrame:
+    """Rejection reason, fill method and fill qualities as labelled (dictionary) columns."""
+    labels = {"rejection_reason": screening.REASON_CODES, "nee_fill_method": _METHOD_LABELS}
+    labels.update({c: _QUALITY_LABELS for c in timeseries.columns if c.endswith("_fill_quality")})
+    return timeseries.assign(**{column: schema.as_labels(timeseries[column].to_numpy(), names)
+                                for column, names in labels.items()
+                                if column in timeseries.columns})
 
 
 def _temperature(config: Config, frame: pd.DataFrame) -> str:
@@ -225,8 +305,7 @@ def _ustar_thresholds(frame, screened, is_night, site, config):
         frame.index, screened["nee"].to_numpy(), screened["ustar"].to_numpy(),
         screened["tair"].to_numpy(), is_night, site.latitude, detector=config.ustar_method,
         draws=config.ustar_bootstrap_draws, seed=config.seed,
-        min_threshold=(ustar.CANOPY_FLOORS[site.canopy] if config.ustar_min_threshold is None
-                       else config.ustar_min_threshold),
+        min_threshold=config.ustar_min_threshold,
         temperature_classes=config.ustar_temperature_classes,
         ustar_classes=config.ustar_classes, plateau_share=config.ustar_plateau_share,
         correlation_limit=config.ustar_correlation_limit)
@@ -282,6 +361,7 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
         The u* table of :attr:`Result.ustar`.
     """
     config = Config() if config is None else config
+    frame, _ = _prepare(frame, site)
     interval = _validate(frame)
     _, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     table, _, _, _ = _ustar_thresholds(frame, screens.screened, is_night, site, config)
@@ -295,10 +375,9 @@ def _per_record(index, per_year: pd.Series) -> np.ndarray:
 def _fill_nee(nee_measured, conditions, index, is_night, config):
     """MDS gap filling of NEE with the configured settings (also scored on artificial gaps)."""
     return gapfill.fill_marginal(
-        nee_measured, conditions, index, is_night=is_night, donors=config.gapfill_donors,
-        rg_tolerance=config.rg_tolerance, tair_tolerance=config.tair_tolerance,
-        vpd_tolerance=config.vpd_tolerance, max_window_days=config.gapfill_max_window_days,
-        min_donors=config.gapfill_min_donors)
+        nee_measured, conditions, index, rg_tolerance=config.rg_tolerance,
+        tair_tolerance=config.tair_tolerance, vpd_tolerance=config.vpd_tolerance,
+        max_window_days=config.gapfill_max_window_days)
 
 
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
@@ -365,7 +444,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         Canonical variables (``nee`` [µmol m-2 s-1], ``rg`` [W m-2], ``tair`` [°C],
         ``vpd`` [hPa], ``ustar`` [m s-1], optionally ``tsoil`` [°C], ``rh`` [%],
         ``nee_flag``) on a regular 30- or 60-minute DatetimeIndex of interval starts
-        in local standard time; one or more years. Not modified.
+        in local standard time; one or more years. Not modified. A tz-aware index
+        is converted with ``site.utc_offset``; other columns are ignored (each with
+        a warning).
     site : Site
         Location of the tower.
     config : Config, optional
@@ -389,12 +470,13 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     config = Config() if config is None else config
     if not isinstance(site, Site):
         raise ConfigError(f"site must be a fluxpart.Site, got {type(site).__name__}")
+    frame, notes = _prepare(frame, site)
     interval = _validate(frame)
     frame = frame.copy()
     frame.index = frame.index.rename("time")
     temperature = _temperature(config, frame)
-    warnings = [f"input: {text}" for text in (provenance or {}).get("reader", {}).get(
-        "warnings", [])]
+    warnings = [f"input: {text}" for text in [*(provenance or {}).get("reader", {}).get(
+        "warnings", []), *notes]]
     step = progress if progress is not None else (lambda label: None)
 
     geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
@@ -410,8 +492,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                         f"ustar_threshold = {config.ustar_threshold} m s-1 was used there")
 
     filled_drivers = gapfill.fill_drivers(
-        screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days,
-        interpolation_hours=config.gapfill_interpolation_hours)
+        screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days)
     conditions = gapfill.driver_conditions(filled_drivers)
 
     runs = {"central": _per_record(frame.index, central)}
@@ -480,13 +561,22 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
             warnings.append(f"{year} is a partial or not fully filled year "
                             f"({int(row['records'])} of {int(row['records_expected'])} records): "
                             "its sums are not annual totals and are not scaled up")
+    for text in warnings:
+        _warnings.warn(text, FluxpartWarning, stacklevel=2)
+    facts = schema.file_metadata(site, interval)
+    parameters = {"nighttime_e0": night.e0_windows, "nighttime_e0_annual": night.e0_annual,
+                  "nighttime_rref": night.rref_windows, "daytime": day.parameters,
+                  "ustar_bootstrap": ustar_draws, **parameters}
     return Result(
-        site=site, config=config, timeseries=timeseries, daily=daily,
-        monthly=monthly, annual=annual, ustar=ustar_table,
-        audit=audit_table,
-        parameters={"nighttime_e0": night.e0_windows, "nighttime_e0_annual": night.e0_annual,
-                    "nighttime_rref": night.rref_windows, "daytime": day.parameters,
-                    "ustar_bootstrap": ustar_draws, **parameters},
+        site=site, config=config,
+        timeseries=schema.with_metadata(_labelled(timeseries), "timeseries", facts),
+        daily=schema.with_metadata(daily, "daily", facts),
+        monthly=schema.with_metadata(monthly, "monthly", facts),
+        annual=schema.with_metadata(annual, "annual", facts),
+        ustar=schema.with_metadata(ustar_table, "ustar", facts),
+        audit=schema.with_metadata(audit_table, "audit", facts),
+        parameters={name: schema.with_metadata(table, f"parameters_{name}", facts)
+                    for name, table in parameters.items()},
         screening_counts=counts, warnings=tuple(warnings),
         provenance={**(provenance or {}), "screening": screens.thresholds,
                     "uncertainty": {"confidence": uncertainty.CONFIDENCE,

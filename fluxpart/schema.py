@@ -1,58 +1,129 @@
-"""Units and descriptions of every output column, stored in the Parquet field metadata.
+"""The column catalogue: unit and description of every output column.
 
 :func:`describe` returns ``(unit, description)`` for a column of a named table.
 Exact names come first, then patterns for families of columns (fill columns of
-each driver, u* scenario sums, coverage shares). A column no rule knows gets an
-empty unit; the test suite checks that every column of a real run is described.
+each driver, u* scenario sums, coverage shares, stated intervals). A column no
+rule knows gets ``("", "")``; the test suite checks that every column of a real
+run is described.
+
+Units are UDUNITS-2 strings (:mod:`fluxpart.units`): ``umol m-2 s-1`` for fluxes of
+CO2, ``g m-2`` for sums of carbon, ``t ha-1`` for tonnes of CO2; the substance
+(carbon, CO2) is named in the description, because UDUNITS-2 would read
+``g C m-2`` as gram·coulomb per square metre. ``"1"`` marks counts, flags and
+shares; ``""`` columns with no unit (names, labels, timestamps).
+
+This module is self-contained: stage modules may import their column
+descriptions from here (:data:`AUDIT_COLUMNS`, :data:`UNCERTAINTY_COLUMNS`,
+:data:`RANDOM_ERROR_MODEL_COLUMNS`), never the other way round.
+
+:func:`file_metadata` builds the file-level key-value metadata (key ``fluxpart``)
+that every Parquet table carries: the site, the record length, the time
+convention and each column's unit and description.
 """
 
 from __future__ import annotations
 
 import re
 
-from .audit import AUDIT_COLUMNS
-from .uncertainty import ANNUAL_COLUMNS, MODEL_COLUMNS
+import numpy as np
+import pandas as pd
+
+from .units import METADATA_CARBON_UNIT as CARBON
+from .units import METADATA_FLUX_UNIT as FLUX
+from .units import METADATA_TONNES_PER_HECTARE, udunits
 from .variables import VARIABLES
 
-__all__ = ["describe", "units_for_table"]
+__all__ = [
+    "AUDIT_COLUMNS",
+    "FILL_METHOD_LABELS",
+    "RANDOM_ERROR_MODEL_COLUMNS",
+    "REASON_LABELS",
+    "TIME_CONVENTION",
+    "QUALITY_LABELS",
+    "UNCERTAINTY_COLUMNS",
+    "as_codes",
+    "as_labels",
+    "describe",
+    "file_metadata",
+    "units_for_table",
+    "with_metadata",
+]
 
-FLUX = "µmol m-2 s-1"
-_NAMES = {"gpp": "GPP", "reco": "Reco"}
-CARBON = "g C m-2"
+#: How every time stamp of every table is meant.
+TIME_CONVENTION = ("each stamp marks the start of its averaging interval, in local standard "
+                   "time (UTC + site utc_offset, no daylight saving); a day, month or year is "
+                   "the set of intervals that start in it")
+
+_NAMES = {"gpp": "GPP", "reco": "Reco", "nee": "NEE"}
+_FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
+
+#: Label of every screening outcome, in the order the checks are applied (the
+#: values of ``rejection_reason``); the first is "kept".
+REASON_LABELS = ("kept", "missing", "out_of_range", "site_flag", "spike", "low_ustar")
+#: Label of every fill-quality code (the values of the ``*_fill_quality`` columns); the
+#: same as :data:`fluxpart.gapfill.QUALITY_NAMES` (tested).
+QUALITY_LABELS: dict[int, str] = {-1: "unfilled", 0: "measured", 1: "A", 2: "B", 3: "C",
+                                  4: "interpolated"}
+#: Label of every fill step (the values of ``nee_fill_method``).
+FILL_METHOD_LABELS = ("measured", "similar_drivers", "similar_radiation", "diurnal_course",
+                      "interpolated", "unfilled")
+
+_REASONS_TEXT = ("kept (passed screening and the u* filter), missing, out_of_range, site_flag, "
+                 "spike (Papale et al. 2006), low_ustar (night record below the u* threshold)")
+_QUALITY_TEXT = ("measured; A, B, C: filled, from the best to the least reliable class of "
+                 "marginal distribution sampling; interpolated: a short driver gap filled "
+                 "linearly; unfilled")
+_CARBON_SUM = "grams of carbon per square metre"
+
+_GPP_NIGHTTIME = (
+    "gross primary production by the nighttime method, Reco_nighttime - NEE, CO2; positive = "
+    "uptake by photosynthesis. At night and in dormant periods it is the scatter of NEE around "
+    "modelled Reco and is often negative: keep the negative values when summing (clipping them "
+    "biases sums upward)")
+_GPP_DAYTIME = (
+    "gross primary production by the daytime light-response method (Lasslop et al. 2010), CO2; "
+    "positive = uptake; the light-response term, 0 at night and >= 0 by construction")
 
 _TIMESERIES = {
     "time": ("", "start of the averaging interval, local standard time"),
-    "sun_elevation": ("degrees", "solar elevation at the middle of the interval"),
+    "sun_elevation": ("degree", "solar elevation at the middle of the interval"),
     "potential_radiation": ("W m-2", "top-of-atmosphere irradiance on a horizontal surface, "
                             "interval mean"),
     "is_night": ("1", "night record: rg below night_rg_threshold (potential radiation 0 where "
                  "rg is missing)"),
-    "rejection_reason": ("1", "first reason NEE was rejected: 0 kept, 1 missing, 2 out of range, "
-                         "3 site flag, 4 spike, 5 low u*"),
+    "rejection_reason": ("", f"screening outcome of the record's NEE: {_REASONS_TEXT}"),
     "ustar_threshold": ("m s-1", "u* threshold applied to this record (its year's central value)"),
-    "nee_measured": (FLUX, "NEE after screening and the u* filter: the values gap filling and "
-                     "partitioning may use"),
-    "nee_filled": (FLUX, "gap-filled NEE (measured where available); positive = release"),
-    "nee_fill_method": ("1", "fill step: 0 measured, 1 similar Rg+Tair+VPD, 2 similar Rg, "
-                        "3 mean diurnal course, -1 not fillable"),
-    "nee_fill_window_days": ("days", "full width of the time window the fill came from"),
+    "nee_measured": (FLUX, "NEE of CO2 after screening and the u* filter: the values gap filling "
+                     "and partitioning may use; positive = release"),
+    "nee_filled": (FLUX, "gap-filled net ecosystem exchange of CO2 (measured where available); "
+                   "positive = release to the atmosphere, negative = uptake"),
+    "nee_fill_method": ("", "fill step: measured, similar_drivers (Rg, Tair, VPD), "
+                        "similar_radiation (Rg only), diurnal_course, unfilled"),
+    "nee_fill_window_days": ("day", "full width of the time window the fill came from"),
     "nee_fill_count": ("1", "number of records averaged into the fill"),
-    "nee_fill_std": (FLUX, "standard deviation of the records averaged into the fill"),
-    "nee_fill_quality": ("1", "fill quality: 0 measured, 1 A, 2 B, 3 C, -1 unfilled"),
-    "gpp_nighttime": (FLUX, "gross primary production, nighttime method (Reco - NEE)"),
-    "reco_nighttime": (FLUX, "ecosystem respiration, nighttime method (Lloyd–Taylor)"),
-    "rref_nighttime": (FLUX, "Lloyd–Taylor reference respiration at 10 °C, nighttime method"),
+    "nee_fill_std": (FLUX, "standard deviation of the records averaged into the fill (CO2)"),
+    "nee_fill_quality": ("", f"fill quality of NEE: {_QUALITY_TEXT}"),
+    "gpp_nighttime": (FLUX, _GPP_NIGHTTIME),
+    "reco_nighttime": (FLUX, "ecosystem respiration by the nighttime method (Lloyd–Taylor), "
+                       "CO2; positive = release, >= 0"),
+    "rref_nighttime": (FLUX, "Lloyd–Taylor reference respiration at 10 °C, nighttime method "
+                       "(CO2)"),
     "e0_nighttime": ("K", "Lloyd–Taylor temperature sensitivity E0 applied (its year's value)"),
-    "gpp_daytime": (FLUX, "gross primary production, daytime light-response method"),
-    "reco_daytime": (FLUX, "ecosystem respiration, daytime light-response method"),
-    "nee_random_error": (FLUX, "random error (standard deviation) of the record's NEE"),
+    "gpp_daytime": (FLUX, _GPP_DAYTIME),
+    "reco_daytime": (FLUX, "ecosystem respiration by the daytime light-response method, CO2; "
+                     "positive = release, >= 0"),
+    "nee_random_error": (FLUX, "random error of the record's NEE, one standard deviation (CO2); "
+                         "also the random error of its nighttime GPP (GPP = Reco - NEE)"),
 }
 
 _BUDGET = {
     "date": ("", "calendar day (local standard time)"),
     "month": ("", "first day of the calendar month"),
-    "year": ("", "calendar year of the interval starts"),
-    "nee": (CARBON, "net ecosystem exchange summed over the period; < 0 is net uptake"),
+    "year": ("", "calendar year of the interval starts (the year the budget year starts in)"),
+    "period_start": ("", "first day of the budget period (local standard time)"),
+    "period_end": ("", "last day of the budget period (local standard time)"),
+    "nee": (CARBON, f"net ecosystem exchange summed over the period, {_CARBON_SUM}; < 0 is net "
+            "uptake"),
     "records": ("1", "records present in the period"),
     "records_expected": ("1", "records the full period has at this interval"),
     "records_unfilled": ("1", "records whose NEE could not be filled"),
@@ -66,78 +137,178 @@ _BUDGET = {
     "ustar_threshold": ("m s-1", "u* threshold applied in the year"),
 }
 
+#: Unit and description of the uncertainty and carbon-accounting columns of the
+#: annual table (:func:`fluxpart.uncertainty.uncertainty_budget`,
+#: :func:`fluxpart.uncertainty.carbon_accounting_units`).
+UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
+    "nee_uncertainty_random": (CARBON, "random error of the annual NEE sum (carbon): standard "
+                               "deviation of the Monte Carlo sums of Laplace record errors"),
+    "nee_uncertainty_random_percentile_2_5": (CARBON, "2.5th percentile of the Monte Carlo "
+                                              "random error of the annual NEE sum (carbon; add "
+                                              "to nee for the lower end of a 95 % interval)"),
+    "nee_uncertainty_random_percentile_97_5": (CARBON, "97.5th percentile of the Monte Carlo "
+                                               "random error of the annual NEE sum (carbon; add "
+                                               "to nee for the upper end of a 95 % interval)"),
+    "nee_uncertainty_random_analytic": (CARBON, "random error of the annual NEE sum (carbon) "
+                                        "from the record variances, assuming independent "
+                                        "errors"),
+    "nee_uncertainty_ustar": (CARBON, "half the range of annual NEE (carbon) over the u* "
+                              "threshold scenarios"),
+    "nee_uncertainty_total": (CARBON, "root sum of squares of the random and u* parts of NEE "
+                              "(carbon; systematic errors not included)"),
+    "nee_uncertainty_gapfill": (CARBON, "1 sigma of the NEE sum (carbon) from gap filling, "
+                                "scored on artificial gaps of the site's own gap lengths: "
+                                "independent and within-gap correlated parts plus the systematic "
+                                "fill bias (Richardson & Hollinger 2007)"),
+    "nee_uncertainty_gapfill_bias": (CARBON, "systematic gap-filling bias of the NEE sum "
+                                     "(carbon) on artificial gaps (fill minus measured; not "
+                                     "subtracted from nee, counted in nee_uncertainty_gapfill)"),
+    "gpp_nighttime_uncertainty_random": (CARBON, "random error of nighttime GPP (carbon) = "
+                                         "random error of NEE (GPP = Reco - NEE)"),
+    "gpp_uncertainty_partitioning": (CARBON, "half the absolute difference of daytime and "
+                                     "nighttime annual GPP (carbon)"),
+    "reco_uncertainty_partitioning": (CARBON, "half the absolute difference of daytime and "
+                                      "nighttime annual Reco (carbon)"),
+    "uncertainty_parts_missing": ("", "parts of the budget that could not be estimated this "
+                                  "year (left out of the totals)"),
+    "net_uptake_t_co2_per_ha": (METADATA_TONNES_PER_HECTARE, "net CO2 uptake in the year in "
+                                "tonnes of CO2 per hectare, positive = uptake "
+                                "(= -NEE x 44.009/12.011 x 0.01)"),
+    "net_uptake_t_co2_per_ha_uncertainty": (METADATA_TONNES_PER_HECTARE, "total uncertainty of "
+                                            "the net uptake, tonnes of CO2 per hectare "
+                                            "(nee_uncertainty_total converted)"),
+    "net_uptake_t_co2_per_ha_uncertainty_random": (METADATA_TONNES_PER_HECTARE, "random part of "
+                                                   "the uncertainty of the net uptake, tonnes "
+                                                   "of CO2 per hectare"),
+}
+for _flux in _FLUXES[1:]:
+    UNCERTAINTY_COLUMNS[f"{_flux}_uncertainty_parameters"] = (
+        CARBON, f"1 sigma of {_flux} (carbon) from the fitted parameters of its method")
+    UNCERTAINTY_COLUMNS[f"{_flux}_uncertainty_ustar"] = (
+        CARBON, f"half the range of annual {_flux} (carbon) over the u* threshold scenarios")
+    UNCERTAINTY_COLUMNS[f"{_flux}_uncertainty_total"] = (
+        CARBON, f"root sum of squares of the parts of {_flux} (carbon): "
+        + ("random, u* and partitioning" if _flux == "gpp_nighttime" else
+           "u* and partitioning (no random part: a model output)"))
+del _flux
+
+#: Unit and description of the random-error model tables
+#: (:class:`fluxpart.uncertainty.RandomErrorModel`).
+RANDOM_ERROR_MODEL_COLUMNS: dict[str, tuple[str, str]] = {
+    "flux_class": ("", "uptake (NEE < 0) or release (NEE >= 0)"),
+    "intercept": (FLUX, "random error model: standard deviation at |NEE| = 0 (CO2)"),
+    "slope": ("1", "random error model: increase of the standard deviation per unit |NEE|"),
+    "lowest_abs_nee": (FLUX, "smallest binned mean |NEE| (CO2); the model is not extrapolated "
+                       "below"),
+    "floor": (FLUX, "smallest standard deviation the model returns (smallest binned value)"),
+    "pairs": ("1", "record pairs 24 h apart under similar conditions"),
+    "bins": ("1", "flux bins the line was fitted to"),
+    "source": ("", "fitted, constant (one bin), or borrowed from the other flux class"),
+    "bin": ("1", "flux bin number within its class, by increasing |NEE|"),
+    "mean_abs_nee": (FLUX, "mean |NEE| of the pairs in the bin (pair means, CO2)"),
+    "sigma": (FLUX, "standard deviation of the pair differences / sqrt(2) (CO2)"),
+    "laplace_scale": (FLUX, "Laplace scale: mean |pair difference| / sqrt(2) (CO2)"),
+    "record_class": ("", "night or day records (gap-filling error model)"),
+    "bias": (FLUX, "gap filling: mean error per filled record on artificial gaps (fill minus "
+             "measured, CO2)"),
+    "bias_se": (FLUX, "standard error of the gap-filling bias (CO2)"),
+    "independent_variance": ("umol2 m-4 s-2", "gap filling: error variance per record "
+                             "independent of its neighbours (a in a n + b n^2)"),
+    "correlated_variance": ("umol2 m-4 s-2", "gap filling: error variance shared by every "
+                            "record of a gap (b in a n + b n^2)"),
+    "gaps": ("1", "artificial gaps scored"),
+    "records": ("1", "held-out measured records scored"),
+}
+
+
+def _reason_column(code: int, name: str) -> str:
+    return "screening_kept" if code == 0 else f"rejected_{name}"
+
+
+_CARBON_ABS = f"{_CARBON_SUM} (CO2 flux converted to carbon)"
+
+#: Unit and description of every column of the audit table (:mod:`fluxpart.audit`).
+AUDIT_COLUMNS: dict[str, tuple[str, str]] = {
+    "year": ("", "calendar year of the interval starts"),
+    "records_present": ("1", "records (rows) of the year in the timeseries"),
+    **{_reason_column(code, name): ("1", "records whose NEE passed screening and the u* filter"
+                                    if code == 0 else
+                                    f"records whose NEE was first rejected as "
+                                    f"{name.replace('_', ' ')}")
+       for code, name in enumerate(REASON_LABELS)},
+    "nee_measured": ("1", "records whose budget NEE is the measured value"),
+    "nee_filled_a": ("1", "records whose NEE was gap-filled with quality A"),
+    "nee_filled_b": ("1", "records whose NEE was gap-filled with quality B"),
+    "nee_filled_c": ("1", "records whose NEE was gap-filled with quality C"),
+    "nee_unfilled": ("1", "records whose NEE could not be filled"),
+    "abs_nee_measured": (CARBON, f"sum of |NEE| over measured records, {_CARBON_ABS}"),
+    "abs_nee_filled": (CARBON, f"sum of |NEE| over gap-filled records, {_CARBON_ABS}"),
+    "abs_nee_share_measured": ("1", "share of the sum of |NEE| from measured records"),
+    "abs_nee_share_filled": ("1", "share of the sum of |NEE| from gap-filled records"),
+}
+
+_SCREENING = {
+    "reason": ("", f"screening outcome of NEE records: {_REASONS_TEXT}"),
+    "records": ("1", "records of the whole input with this outcome (rejections counted under "
+                "their first reason)"),
+}
+
+
+def _driver(name: str):
+    variable = VARIABLES[name]
+    return udunits(variable.unit), variable.description
+
+
 _PATTERNS = [
-    (r"(rg|tair|vpd|tsoil)_filled", lambda m: (VARIABLES[m[1]].unit,
-                                               f"gap-filled {VARIABLES[m[1]].description}")),
-    (r"(rg|tair|vpd|tsoil)_fill_quality", lambda m: ("1", f"fill quality of {m[1]}: 0 measured, "
-                                                     "1 A, 2 B, 3 C, -1 unfilled")),
+    (r"(rg|tair|vpd|tsoil)_filled", lambda m: (_driver(m[1])[0],
+                                               f"gap-filled {_driver(m[1])[1]}")),
+    (r"(rg|tair|vpd|tsoil)_fill_quality", lambda m: ("", f"fill quality of {m[1]}: "
+                                                     f"{_QUALITY_TEXT}")),
     (r"(\w+)_out_of_range", lambda m: ("1", f"{m[1]} outside its plausible range")),
     (r"nee_site_flag", lambda m: ("1", "rejected by the site's own flag")),
     (r"nee_spike", lambda m: ("1", "rejected as a spike (Papale et al. 2006)")),
     (r"nee_low_ustar", lambda m: ("1", "night record with u* below the threshold")),
     (r"rg_above_potential", lambda m: ("1", "Rg above potential radiation by more than the "
                                        "margin")),
+    (r"(gpp|reco|nee)_(nighttime|daytime|filled)_(random_error|uncertainty|sigma)",
+     lambda m: (FLUX, f"one standard deviation of the record's {_NAMES[m[1]]} "
+                f"({m[2]}), CO2")),
 ]
 
+_FLUX_PATTERN = "|".join(_FLUXES)
 _BUDGET_PATTERNS = [
-    (r"(nee|gpp_nighttime|reco_nighttime|gpp_daytime|reco_daytime)_ustar_(p[\d.]+)",
-     lambda m: (CARBON, f"{m[1]} summed with the u* threshold at bootstrap percentile "
-                f"{m[2][1:]}")),
-    (r"(nee|gpp_nighttime|reco_nighttime|gpp_daytime|reco_daytime)_ustar_spread",
-     lambda m: (CARBON, f"{m[1]}: max - min over the u* threshold scenarios")),
-    (r"(gpp|reco)_(nighttime|daytime)", lambda m: (CARBON, f"{_NAMES[m[1]]} summed over the "
-                                                   f"period, {m[2]} method")),
+    (rf"({_FLUX_PATTERN})_ustar_(p[\d.]+)",
+     lambda m: (CARBON, f"{m[1]} summed ({_CARBON_SUM}) with the u* threshold at bootstrap "
+                f"percentile {m[2][1:]}")),
+    (rf"({_FLUX_PATTERN})_ustar_spread",
+     lambda m: (CARBON, f"{m[1]} ({_CARBON_SUM}): max - min over the u* threshold scenarios")),
+    (rf"({_FLUX_PATTERN})_ci95_(low|high)",
+     lambda m: (CARBON, f"{'lower' if m[2] == 'low' else 'upper'} end of the stated 95 % "
+                f"interval of {m[1]} ({_CARBON_SUM}) from every uncertainty part the product "
+                "quantifies; the parts it cannot quantify are listed in the manifest "
+                "(provenance, uncertainty, not_quantified)")),
+    (rf"({_FLUX_PATTERN})_(random_error|uncertainty|sigma)",
+     lambda m: (CARBON, f"one standard deviation of the period's {m[1]} sum ({_CARBON_SUM})")),
+    (rf"({_FLUX_PATTERN})_uncertainty_(\w+)",
+     lambda m: (CARBON, f"1 sigma: the {m[2].replace('_', ' ')} part of the uncertainty of "
+                f"{m[1]} ({_CARBON_SUM})")),
+    (r"gpp_nighttime", lambda m: (CARBON, f"GPP summed over the period, nighttime method "
+                                  f"({_CARBON_SUM}); can be slightly negative in dormant "
+                                  "periods (see the timeseries column)")),
+    (r"gpp_daytime", lambda m: (CARBON, f"GPP summed over the period, daytime method "
+                                f"({_CARBON_SUM}), >= 0")),
+    (r"reco_(nighttime|daytime)", lambda m: (CARBON, f"Reco summed over the period, {m[1]} "
+                                             f"method ({_CARBON_SUM}), >= 0")),
     (r"(gpp|reco)_method_difference", lambda m: (CARBON, f"{_NAMES[m[1]]} daytime minus "
-                                                 "nighttime")),
+                                                 f"nighttime ({_CARBON_SUM})")),
     (r"(gpp|reco)_relative_difference", lambda m: ("1", f"{_NAMES[m[1]]} (daytime - nighttime) "
                                                    "/ mean of both")),
     (r"methods_agree", lambda m: ("1", "daytime and nighttime GPP and Reco within the "
                                   "agreement margin")),
 ]
 
-
-def describe(table: str, column: str) -> tuple[str, str]:
-    """Return ``(unit, description)`` of `column` in output table `table`.
-
-    Parameters
-    ----------
-    table : str
-        ``"timeseries"``, ``"daily"``, ``"monthly"``, ``"annual"`` or a parameter table.
-    column : str
-        Column name.
-
-    Returns
-    -------
-    tuple of str
-        Unit (``"1"`` for counts, flags and shares; ``""`` where none applies or the
-        column is unknown) and a one-line description.
-    """
-    if table == "timeseries":
-        if column in VARIABLES:
-            variable = VARIABLES[column]
-            return variable.unit, f"input: {variable.description}"
-        exact, patterns = _TIMESERIES, _PATTERNS
-    elif table in ("daily", "monthly", "annual"):
-        exact, patterns = {**_BUDGET, **ANNUAL_COLUMNS}, _BUDGET_PATTERNS
-    elif table == "audit":
-        exact, patterns = {"year": _BUDGET["year"], **AUDIT_COLUMNS}, []
-    else:
-        return {**MODEL_COLUMNS, **_PARAMETER_UNITS}.get(column, ("", ""))
-    if column in exact:
-        return exact[column]
-    for pattern, rule in patterns:
-        match = re.fullmatch(pattern, column)
-        if match:
-            return rule(match)
-    return "", ""
-
-
-def units_for_table(table: str, columns) -> dict[str, tuple[str, str]]:
-    """Return column -> (unit, description) for every column of a table."""
-    return {column: describe(table, column) for column in columns}
-
-
-_PARAMETER_UNITS = {
+_PARAMETERS = {
+    "row": ("1", "row number"),
     "window_start": ("", "first instant of the window"),
     "window_end": ("", "end of the window (exclusive)"),
     "window_centre": ("", "centre of the window; parameters are assigned here"),
@@ -147,15 +318,16 @@ _PARAMETER_UNITS = {
     "temperature_range": ("K", "range of temperature in the window"),
     "e0": ("K", "Lloyd–Taylor temperature sensitivity"),
     "e0_se": ("K", "standard error of E0"),
-    "rref": (FLUX, "reference respiration at 10 °C"),
-    "rref_se": (FLUX, "standard error of Rref"),
-    "alpha": ("µmol J-1", "initial slope of the light response (canopy light-use efficiency)"),
-    "alpha_se": ("µmol J-1", "standard error of alpha"),
-    "beta0": (FLUX, "maximum assimilation at light saturation below the VPD limit"),
+    "rref": (FLUX, "reference respiration at 10 °C (CO2)"),
+    "rref_se": (FLUX, "standard error of Rref (CO2)"),
+    "alpha": ("umol J-1", "initial slope of the light response (canopy light-use efficiency, "
+              "µmol CO2 per joule of global radiation)"),
+    "alpha_se": ("umol J-1", "standard error of alpha"),
+    "beta0": (FLUX, "maximum assimilation of CO2 at light saturation below the VPD limit"),
     "beta0_se": (FLUX, "standard error of beta0"),
     "k": ("hPa-1", "VPD limitation coefficient"),
     "k_se": ("hPa-1", "standard error of k"),
-    "rmse": (FLUX, "root-mean-square residual of the fit"),
+    "rmse": (FLUX, "root-mean-square residual of the fit (CO2)"),
     "accepted": ("1", "fit accepted"),
     "reason": ("", "why a fit was rejected or replaced, or a note on an accepted one"),
     "status": ("", "daytime window: accepted (own fit), replaced (refit with Rref fixed at the "
@@ -170,7 +342,6 @@ _PARAMETER_UNITS = {
     "weighted": ("1", "fit weighted by the random error of NEE"),
     "k_fixed": ("1", "k fixed at 0 (not identifiable)"),
     "threshold": ("m s-1", "u* threshold"),
-    "row": ("1", "row number"),
     "period": ("", "\"year\" or the season name"),
     "months": ("", "months of the season, e.g. DJF"),
     "detector": ("", "u* threshold detector: moving_point, change_point or fixed"),
@@ -189,3 +360,161 @@ _PARAMETER_UNITS = {
     "windows_tried": ("1", "E0 windows fitted in the year"),
     "source": ("", "where the value came from"),
 }
+
+
+def describe(table: str, column: str) -> tuple[str, str]:
+    """Return ``(unit, description)`` of `column` in output table `table`.
+
+    Parameters
+    ----------
+    table : str
+        ``"timeseries"``, ``"daily"``, ``"monthly"``, ``"annual"``, ``"audit"``,
+        ``"screening"``, ``"ustar"``, ``"parameters"`` or a parameter table's file name
+        (``"parameters_daytime"``, ...).
+    column : str
+        Column name.
+
+    Returns
+    -------
+    tuple of str
+        A UDUNITS-2 unit (``"1"`` for counts, flags and shares; ``""`` where none
+        applies or the column is unknown) and a one-line description.
+    """
+    if table == "timeseries":
+        if column in VARIABLES:
+            variable = VARIABLES[column]
+            return udunits(variable.unit), f"input: {variable.description}"
+        exact, patterns = _TIMESERIES, _PATTERNS
+    elif table in ("daily", "monthly", "annual"):
+        exact, patterns = {**_BUDGET, **UNCERTAINTY_COLUMNS}, _BUDGET_PATTERNS
+    elif table == "audit":
+        exact, patterns = AUDIT_COLUMNS, []
+    elif table == "screening":
+        exact, patterns = _SCREENING, []
+    elif table == "parameters" and column in _SCREENING:
+        # a writer that names every parameter-like table "parameters" cannot tell the
+        # screening table from the fit tables: say what the column means in both
+        unit, text = _SCREENING[column]
+        if column in _PARAMETERS:
+            text = f"{_PARAMETERS[column][1]} (fit tables); in the screening table: {text}"
+        return unit, text
+    else:
+        exact, patterns = {**RANDOM_ERROR_MODEL_COLUMNS, **_PARAMETERS}, []
+    if column in exact:
+        return exact[column]
+    for pattern, rule in patterns:
+        match = re.fullmatch(pattern, column)
+        if match:
+            return rule(match)
+    return "", ""
+
+
+def units_for_table(table: str, columns) -> dict[str, tuple[str, str]]:
+    """Return column -> (unit, description) for every column of a table."""
+    return {column: describe(table, column) for column in columns}
+
+
+def as_labels(codes, labels: dict[int, str]) -> pd.Categorical:
+    """Turn integer codes into a categorical of their labels (a dictionary-encoded column).
+
+    Parameters
+    ----------
+    codes : array_like of int
+        The codes, e.g. fill-quality or rejection-reason codes.
+    labels : dict of int to str
+        Every code and its label. The categories are all labels, in the order of
+        the non-negative codes, then the negative ones (``"unfilled"`` last), so the
+        column's dictionary does not depend on which codes occur.
+
+    Returns
+    -------
+    pandas.Categorical
+        One label per code.
+
+    Raises
+    ------
+    ValueError
+        If a code has no label (a programming error, not user input).
+    """
+    values = np.asarray(codes)
+    order = sorted(labels, key=lambda code: (code < 0, abs(code)))
+    unknown = np.setdiff1d(np.unique(values), np.asarray(order))
+    if unknown.size:
+        raise ValueError(f"codes without a label: {unknown.tolist()}")
+    position = {code: i for i, code in enumerate(order)}
+    lookup = np.vectorize(position.__getitem__, otypes=[np.int64])
+    indices = lookup(values) if values.size else np.zeros(0, dtype=np.int64)
+    return pd.Categorical.from_codes(indices, categories=[labels[c] for c in order])
+
+
+def as_codes(values, labels: dict[int, str]) -> np.ndarray:
+    """Return integer codes of a column given as codes or as their labels.
+
+    The inverse of :func:`as_labels`, so that stage functions accept a result's
+    labelled columns as well as the codes they compute with.
+
+    Parameters
+    ----------
+    values : array_like or pandas.Series
+        Integer codes, or labels (strings or a categorical).
+    labels : dict of int to str
+        Every code and its label.
+
+    Returns
+    -------
+    numpy.ndarray
+        Float codes; NaN where a value is missing or neither a code nor a label.
+    """
+    series = pd.Series(values) if not isinstance(values, pd.Series) else values
+    if pd.api.types.is_numeric_dtype(series) or pd.api.types.is_bool_dtype(series):
+        return series.to_numpy(dtype=float, na_value=np.nan)
+    code_of = {label: float(code) for code, label in labels.items()}
+    if isinstance(series.dtype, pd.CategoricalDtype):
+        table = np.array([code_of.get(c, np.nan) for c in series.cat.categories] + [np.nan])
+        return table[series.cat.codes.to_numpy()]      # code -1 (missing) -> the NaN slot
+    return np.array([code_of.get(v, np.nan) if isinstance(v, str) else
+                     (float(v) if isinstance(v, (int, float, np.number)) else np.nan)
+                     for v in series.astype(object)], dtype=float)
+
+
+def file_metadata(site, interval_minutes: int | None) -> dict:
+    """Return the site and time facts every Parquet table of a result carries.
+
+    Parameters
+    ----------
+    site : fluxpart.Site or dict
+        The tower: name, latitude [degrees north], longitude [degrees east],
+        utc_offset [h] of the local standard time.
+    interval_minutes : int or None
+        Record length [min] (30 or 60); None if unknown.
+
+    Returns
+    -------
+    dict
+        ``{"site": {...}, "interval_minutes": ..., "time_convention": ...}``, for the
+        ``metadata`` argument of :func:`fluxpart.store.write_table`.
+    """
+    record = site if isinstance(site, dict) else site.to_dict()
+    return {
+        "site": {key: record.get(key) for key in ("name", "latitude", "longitude",
+                                                  "utc_offset")},
+        "interval_minutes": None if interval_minutes is None else int(interval_minutes),
+        "time_convention": TIME_CONVENTION,
+    }
+
+
+def with_metadata(frame: pd.DataFrame, table: str, facts: dict) -> pd.DataFrame:
+    """Return a shallow copy of `frame` whose ``attrs`` describe it.
+
+    ``attrs`` gets `facts` (from :func:`file_metadata`), the table name, and
+    ``units`` and ``descriptions`` of every column and of the index, as
+    :func:`fluxpart.store.read_table` gives them for a loaded table; the Parquet
+    writer stores the same facts in the file.
+    """
+    out = frame.copy(deep=False)
+    columns = [*([frame.index.name] if frame.index.name else []), *map(str, frame.columns)]
+    described = units_for_table(table, columns)
+    out.attrs.update({**facts, "table": table,
+                      "units": {c: unit for c, (unit, _) in described.items()},
+                      "descriptions": {c: text for c, (_, text) in described.items()}})
+    return out

@@ -35,6 +35,7 @@ from .errors import (
     LengthMismatchError,
     MissingColumnError,
 )
+from .schema import REASON_LABELS
 from .variables import VARIABLES
 
 __all__ = [
@@ -48,15 +49,10 @@ __all__ = [
     "site_flag",
 ]
 
-#: Reason code -> reason name, in the order the checks are applied.
-REASON_CODES: dict[int, str] = {
-    0: "kept",
-    1: "missing",
-    2: "out_of_range",
-    3: "site_flag",
-    4: "spike",
-    5: "low_ustar",
-}
+#: Reason code -> reason name, in the order the checks are applied: 0 kept, 1 missing,
+#: 2 out_of_range, 3 site_flag, 4 spike, 5 low_ustar. The names are the labels of the
+#: string-coded ``rejection_reason`` column of a result (:data:`fluxpart.schema.REASON_LABELS`).
+REASON_CODES: dict[int, str] = dict(enumerate(REASON_LABELS))
 
 # Median absolute deviation of a normal sample divided by this estimates its
 # standard deviation: the 0.75 quantile of the standard normal distribution,

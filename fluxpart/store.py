@@ -1,12 +1,27 @@
 """Writing and loading result tables: Parquet with units, written atomically.
 
-Each table is one Parquet file. Its index becomes the first column; each column
-carries its unit and description in the Arrow field metadata (keys ``unit`` and
-``description``), and the file's schema metadata names the index column so that
-:func:`read_table` restores the same DataFrame. Files are written to a temporary
-name in the target folder and renamed into place, so a reader never sees a
-half-written table. The bytes depend only on the table content and the library
-versions: same content, same file.
+Each table is one Parquet file. Its index becomes the first column (an unnamed
+default ``RangeIndex`` is not stored, nor one named ``index`` that ``reset_index``
+left behind). Every column's unit and description are
+stored twice, so that every reader finds them:
+
+- in the Arrow field metadata (keys ``unit`` and ``description``), which pyarrow
+  and pandas show;
+- in the file-level key-value metadata under the key ``fluxpart`` (JSON), which
+  DuckDB (``parquet_kv_metadata``), Polars (``read_parquet_metadata``) and any
+  Parquet reader show: ``{"table", "index", "columns": {name: {"unit",
+  "description"}}}`` plus whatever the writer passes as ``metadata`` (a result
+  folder passes the site, the record length and the time convention:
+  :func:`fluxpart.schema.file_metadata`).
+
+Units are UDUNITS-2 strings (:mod:`fluxpart.units`). String columns that hold a few
+labels (pandas ``category``: fill quality, rejection reasons) are stored
+dictionary-encoded. :func:`read_table` restores the same DataFrame and puts the
+units into ``DataFrame.attrs``.
+
+Files are written to a temporary name in the target folder and renamed into place,
+so a reader never sees a half-written table. The bytes depend only on the table
+content and the library versions: same content, same file.
 """
 
 from __future__ import annotations
@@ -26,6 +41,9 @@ from .errors import InputFileError
 __all__ = ["atomic_write_bytes", "column_units", "file_sha256", "read_table", "write_table"]
 
 _SCHEMA_KEY = b"fluxpart"
+#: Facts of a frame's ``attrs`` that travel into the file metadata (set by the
+#: pipeline and by :func:`read_table`; see :func:`fluxpart.schema.with_metadata`).
+_CARRIED = ("site", "interval_minutes", "time_convention")
 # Result files are meant to be shared: readable by all, writable by the owner
 # (mkstemp would leave them 0600).
 _FILE_MODE = 0o644
@@ -57,42 +75,70 @@ def atomic_write_bytes(path, data: bytes) -> None:
         raise
 
 
-def _to_arrow(frame: pd.DataFrame, units: dict[str, tuple[str, str]], name: str) -> pa.Table:
-    index_name = frame.index.name or "index"
-    flat = frame.reset_index(names=index_name) if index_name not in frame.columns else frame
+def _stored_index(frame: pd.DataFrame) -> str | None:
+    """Name of the index column to store, or None for an unnamed default RangeIndex."""
+    index = frame.index
+    if index.name in (None, "index") and isinstance(index, pd.RangeIndex) \
+            and index.start == 0 and index.step == 1:
+        return None     # a row counter (also one left behind by reset_index) says nothing
+    return index.name or "index"
+
+
+def _to_arrow(frame: pd.DataFrame, units: dict[str, tuple[str, str]], name: str,
+              metadata: dict | None) -> pa.Table:
+    index_name = _stored_index(frame)
+    if index_name is None:
+        flat = frame.reset_index(drop=True)
+    elif index_name in frame.columns:
+        flat = frame.reset_index(drop=True)
+    else:
+        flat = frame.reset_index(names=index_name)
     table = pa.Table.from_pandas(flat, preserve_index=False)
-    fields = []
+    fields, columns = [], {}
     for field in table.schema:
         unit, description = units.get(field.name, ("", ""))
+        columns[field.name] = {"unit": unit, "description": description}
         fields.append(field.with_metadata({b"unit": unit.encode(), b"description":
                                            description.encode()}))
-    meta = {"table": name, "index": index_name}
-    schema = pa.schema(fields, metadata={_SCHEMA_KEY: json.dumps(meta, sort_keys=True).encode()})
+    carried = {key: frame.attrs[key] for key in _CARRIED if key in frame.attrs}
+    meta = {**carried, **(metadata or {}), "table": name, "index": index_name,
+            "columns": columns}
+    text = json.dumps(meta, sort_keys=True, ensure_ascii=False, allow_nan=False)
+    schema = pa.schema(fields, metadata={_SCHEMA_KEY: text.encode("utf-8")})
     return pa.Table.from_arrays(table.columns, schema=schema)
 
 
-def write_table(frame: pd.DataFrame, path, units: dict[str, tuple[str, str]], name: str) -> str:
+def write_table(frame: pd.DataFrame, path, units: dict[str, tuple[str, str]], name: str, *,
+                metadata: dict | None = None) -> str:
     """Write `frame` to the Parquet file `path` atomically.
 
     Parameters
     ----------
     frame : pandas.DataFrame
-        The table; its index is stored as the first column.
+        The table; its index is stored as the first column (not an unnamed
+        default RangeIndex).
     path : path-like
         Target file.
     units : dict
-        Column name -> (unit, description) stored in each field's metadata.
+        Column name -> (unit, description), stored in each field's metadata and in
+        the file's ``fluxpart`` key-value metadata. Units are UDUNITS-2 strings.
     name : str
-        Table name recorded in the schema metadata.
+        Table name recorded in the file metadata.
+    metadata : dict, optional
+        More JSON-compatible facts for the file's ``fluxpart`` key-value metadata,
+        e.g. :func:`fluxpart.schema.file_metadata` (site, record length, time
+        convention); where absent, the same keys are taken from ``frame.attrs``.
+        The keys ``table``, ``index`` and ``columns`` are set here.
 
     Returns
     -------
     str
         SHA-256 of the written file.
     """
-    table = _to_arrow(frame, units, name)
+    table = _to_arrow(frame, units, name, metadata)
+    dictionary = [f.name for f in table.schema if pa.types.is_dictionary(f.type)]
     sink = pa.BufferOutputStream()
-    pq.write_table(table, sink, compression="zstd", use_dictionary=False,
+    pq.write_table(table, sink, compression="zstd", use_dictionary=dictionary or False,
                    write_statistics=True, store_schema=True)
     data = sink.getvalue().to_pybytes()
     atomic_write_bytes(path, data)
@@ -101,6 +147,11 @@ def write_table(frame: pd.DataFrame, path, units: dict[str, tuple[str, str]], na
 
 def read_table(path) -> pd.DataFrame:
     """Read a table written by :func:`write_table`, restoring its index.
+
+    The returned frame's ``attrs`` hold ``units`` and ``descriptions`` (column ->
+    text, index column included) and the other facts of the file's ``fluxpart``
+    metadata (``table``, and ``site``, ``interval_minutes``, ``time_convention``
+    where the writer stored them).
 
     Raises
     ------
@@ -117,7 +168,17 @@ def read_table(path) -> pd.DataFrame:
                              "(no fluxpart schema metadata)")
     info = json.loads(meta[_SCHEMA_KEY])
     frame = table.to_pandas()
-    return frame.set_index(info["index"])
+    if info.get("index") is not None:
+        frame = frame.set_index(info["index"])
+    columns = info.get("columns") or {
+        f.name: {"unit": (f.metadata or {}).get(b"unit", b"").decode(),
+                 "description": (f.metadata or {}).get(b"description", b"").decode()}
+        for f in table.schema}
+    attrs = {key: value for key, value in info.items() if key not in ("columns", "index")}
+    attrs["units"] = {column: entry["unit"] for column, entry in columns.items()}
+    attrs["descriptions"] = {column: entry["description"] for column, entry in columns.items()}
+    frame.attrs.update(attrs)
+    return frame
 
 
 def column_units(path) -> dict[str, str]:

@@ -19,3 +19,20 @@ def load_reference(name: str) -> dict:
 def rng():
     """A seeded NumPy generator, the same in every test."""
     return np.random.default_rng(20261202)
+
+
+@pytest.fixture(scope="session")
+def written_demo(tmp_path_factory):
+    """One demo site-year processed with few draws and written to a result folder.
+
+    Shared by the tests of the written files (schema, store, export): (result, folder).
+    Few bootstrap and Monte Carlo draws keep it quick; every table is still produced.
+    """
+    import fluxpart
+    from fluxpart import demo
+
+    frame, _ = demo.site_year(seed=0)
+    config = fluxpart.Config(ustar_bootstrap_draws=20, random_error_draws=50)
+    result = fluxpart.process(frame, demo.site(), config)
+    folder = result.write(tmp_path_factory.mktemp("written") / "result")
+    return result, folder

@@ -1,5 +1,6 @@
 """Pipeline wiring, the public contract, determinism and known-truth recovery on the demo."""
 
+import datetime
 import hashlib
 
 import numpy as np
@@ -9,7 +10,13 @@ import pytest
 import fluxpart
 from fluxpart import Config, demo
 from fluxpart.budget import flux_to_carbon
-from fluxpart.errors import ConfigError, InsufficientDataError, MissingColumnError, SpacingError
+from fluxpart.errors import (
+    ConfigError,
+    FluxpartWarning,
+    InsufficientDataError,
+    MissingColumnError,
+    SpacingError,
+)
 from fluxpart.pipeline import process
 from fluxpart.schema import describe
 
@@ -62,7 +69,7 @@ def test_measured_records_are_kept_as_measured(demo_run):
     """Where NEE passed screening and the u* filter, the filled series is the measurement."""
     _, _, result = demo_run
     ts = result.timeseries
-    measured = ts["nee_fill_quality"] == 0
+    measured = ts["nee_fill_quality"] == "measured"
     np.testing.assert_array_equal(ts.loc[measured, "nee_filled"], ts.loc[measured, "nee_measured"])
     assert (ts.loc[ts["nee_low_ustar"], "nee_measured"].isna()).all()
 
@@ -177,10 +184,27 @@ def test_bad_frames_are_rejected_with_the_column_or_row_named():
         process(frame.drop(columns="ustar"), demo.site())
     with pytest.raises(SpacingError, match="row 3"):
         process(frame.drop(frame.index[3]), demo.site())
-    with pytest.raises(SpacingError, match="time zone"):
-        process(frame.tz_localize("UTC"), demo.site())
     with pytest.raises(MissingColumnError, match="'vpd'.*no values"):
         process(frame.assign(vpd=np.nan), demo.site())
+
+
+def test_zoned_index_is_converted_and_extra_columns_ignored():
+    """Issue 15: a tz-aware index is converted with Site.utc_offset; an extra column is
+    ignored; both are noted in the warnings and issued as FluxpartWarning."""
+    frame, _ = demo.site_year(seed=0)
+    site = demo.site()
+    config = Config(ustar_method="fixed", random_error_draws=20)
+    plain = process(frame, site, config)
+    zone = datetime.timezone(datetime.timedelta(hours=site.utc_offset))
+    zoned = frame.tz_localize(zone).tz_convert("UTC").assign(soil_water=0.3)
+    with pytest.warns(FluxpartWarning, match="soil_water"):
+        result = process(zoned, site, config)
+    assert result.timeseries.index.equals(plain.timeseries.index)
+    assert "soil_water" not in result.timeseries.columns
+    np.testing.assert_array_equal(result.timeseries["nee_filled"], plain.timeseries["nee_filled"])
+    assert any("time zone" in text for text in result.warnings)
+    assert "soil_water" in zoned.columns and zoned.index.tz is not None   # input untouched
+    assert len(repr(result)) < 200 and site.name in repr(result)
 
 
 def test_too_little_night_data_fails_clearly_unless_a_fallback_is_chosen():

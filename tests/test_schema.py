@@ -1,0 +1,173 @@
+"""The column catalogue: UDUNITS-2 units, descriptions, labelled codes (issue 15)."""
+
+import ast
+import re
+from pathlib import Path
+
+import numpy as np
+import pyarrow.parquet as pq
+import pytest
+
+from fluxpart import schema, screening
+from fluxpart.schema import as_labels, describe, units_for_table
+from fluxpart.units import display_unit, udunits
+
+cf_units = pytest.importorskip("cf_units")
+
+_CARBON_COLUMNS = ("nee", "gpp_nighttime", "reco_daytime", "nee_ustar_p16", "nee_ci95_low",
+                   "gpp_nighttime_uncertainty_total", "abs_nee_filled")
+
+
+def _all_catalogue_entries():
+    """Every (table, column) the catalogue knows by name, plus samples of each pattern."""
+    entries = [("timeseries", c) for c in schema._TIMESERIES]
+    entries += [("timeseries", c) for c in ("nee", "rg", "tair", "vpd", "ustar", "tsoil", "rh",
+                                            "nee_flag", "tair_filled", "vpd_fill_quality",
+                                            "rg_out_of_range", "gpp_daytime_random_error")]
+    entries += [("annual", c) for c in [*schema._BUDGET, *schema.UNCERTAINTY_COLUMNS]]
+    entries += [("annual", c) for c in ("gpp_daytime", "reco_nighttime", "nee_ustar_p84",
+                                        "gpp_daytime_ustar_spread", "reco_daytime_ci95_high",
+                                        "gpp_method_difference", "reco_relative_difference",
+                                        "methods_agree")]
+    entries += [("audit", c) for c in schema.AUDIT_COLUMNS]
+    entries += [("screening", c) for c in schema._SCREENING]
+    entries += [("parameters_daytime", c) for c in [*schema._PARAMETERS,
+                                                    *schema.RANDOM_ERROR_MODEL_COLUMNS]]
+    return entries
+
+
+def test_every_catalogue_unit_parses_with_udunits():
+    """Every unit the catalogue writes is valid UDUNITS-2 (cf_units 3.x, `cf_units.Unit(u)`)."""
+    for table, column in _all_catalogue_entries():
+        unit, description = describe(table, column)
+        assert description, (table, column)
+        if unit:
+            parsed = cf_units.Unit(unit)
+            assert not parsed.is_unknown(), (table, column, unit)
+
+
+def test_carbon_and_co2_units_name_their_substance_in_the_description():
+    """g m-2 columns say "carbon", t ha-1 columns say "CO2": the unit cannot carry it."""
+    for table, column in _all_catalogue_entries():
+        unit, description = describe(table, column)
+        if unit == "g m-2":
+            assert "carbon" in description, (table, column)
+        if unit == "t ha-1":
+            assert "CO2" in description, (table, column)
+    for column in _CARBON_COLUMNS:
+        table = "audit" if column.startswith("abs_") else "annual"
+        assert describe(table, column)[0] == "g m-2"
+
+
+def test_display_units_would_be_misread_by_udunits():
+    """Why the substance left the unit: UDUNITS-2 reads "g C m-2" as gram·coulomb per m².
+
+    cf_units 3.x: `Unit("g C m-2").is_convertible("g m-2")` is False (C = coulomb), and
+    "t CO2 ha-1" does not parse; their metadata forms are mass per area.
+    """
+    assert not cf_units.Unit("g C m-2").is_convertible(cf_units.Unit("g m-2"))
+    with pytest.raises(ValueError):
+        cf_units.Unit("t CO2 ha-1")
+    assert cf_units.Unit(udunits("g C m-2")).is_convertible(cf_units.Unit("kg m-2"))
+    assert cf_units.Unit(udunits("t CO2 ha-1")).is_convertible(cf_units.Unit("kg m-2"))
+    assert display_unit(udunits("g C m-2")) == "g C m-2"
+
+
+def test_metadata_units_convert_as_the_display_units_mean():
+    """UDUNITS-2 conversions of the metadata units (cf_units `Unit.convert`).
+
+    1 umol m-2 s-1 = 1e-6 mol m-2 s-1; 1 t ha-1 = 100 g m-2; 20 degC = 293.15 K (SI
+    Brochure, 9th ed.); 1 hPa = 100 Pa.
+    """
+    convert = [("umol m-2 s-1", "mol m-2 s-1", 1.0, 1e-6), ("t ha-1", "g m-2", 1.0, 100.0),
+               ("degC", "K", 20.0, 293.15), ("hPa", "Pa", 1.0, 100.0)]
+    for source, target, value, expected in convert:
+        got = cf_units.Unit(source).convert(value, cf_units.Unit(target))
+        assert got == pytest.approx(expected, rel=1e-12), (source, target)
+    assert udunits("µmol m-2 s-1") == "umol m-2 s-1" and udunits("°C") == "degC"
+
+
+def test_schema_imports_no_stage_module():
+    """The catalogue is self-contained: schema.py imports only units and variables."""
+    tree = ast.parse(Path(schema.__file__).read_text(encoding="utf-8"))
+    relative = {node.module for node in ast.walk(tree)
+                if isinstance(node, ast.ImportFrom) and node.level == 1}
+    assert relative <= {"units", "variables"}, relative
+
+
+def test_reason_labels_are_the_screening_reason_names():
+    """The labelled rejection_reason uses the screening module's reason names, in code order."""
+    assert tuple(screening.REASON_CODES.values()) == schema.REASON_LABELS
+    assert list(screening.REASON_CODES) == list(range(len(schema.REASON_LABELS)))
+
+
+def test_as_labels_keeps_every_category_whatever_occurs():
+    """Codes become labels; the dictionary holds every label in a fixed order."""
+    labels = {-1: "unfilled", 0: "measured", 1: "A", 2: "B", 3: "C"}
+    out = as_labels(np.array([0, 3, -1, 0], dtype=np.int8), labels)
+    assert list(out) == ["measured", "C", "unfilled", "measured"]
+    assert list(out.categories) == ["measured", "A", "B", "C", "unfilled"]
+    assert list(as_labels(np.array([], dtype=np.int8), labels).categories) == \
+        list(out.categories)
+    with pytest.raises(ValueError, match="7"):
+        as_labels(np.array([0, 7]), labels)
+
+
+def test_screening_and_fit_reasons_are_described_apart():
+    """Regression (issue 15): the screening table's `reason` is not a fit rejection."""
+    assert "screening outcome" in describe("screening", "reason")[1]
+    assert "fit" in describe("parameters_daytime", "reason")[1]
+    assert describe("screening", "records")[1]
+
+
+def test_nighttime_gpp_description_warns_of_negative_values():
+    """Issue 15: the sign and the negative night values of nighttime GPP are stated."""
+    text = describe("timeseries", "gpp_nighttime")[1]
+    assert "negative" in text and "positive = uptake" in text
+    assert ">= 0" in describe("timeseries", "gpp_daytime")[1]
+
+
+def test_written_files_describe_every_column(written_demo):
+    """Every column of every Parquet file of a result folder has a description and a
+    UDUNITS-2 unit (or none), in the field and in the file metadata (issue 15)."""
+    _, folder = written_demo
+    files = sorted(Path(folder).glob("*.parquet"))
+    assert {"timeseries.parquet", "annual.parquet", "screening.parquet"} <= \
+        {f.name for f in files}
+    for path in files:
+        parquet = pq.ParquetFile(path)
+        schema_ = parquet.schema_arrow
+        assert "index" not in schema_.names, path.name
+        for field in schema_:
+            meta = field.metadata or {}
+            unit, description = meta.get(b"unit", b"").decode(), meta.get(b"description",
+                                                                          b"").decode()
+            assert description, (path.name, field.name)
+            if unit:
+                assert not cf_units.Unit(unit).is_unknown(), (path.name, field.name, unit)
+    screening_table = pq.read_schema(Path(folder) / "screening.parquet")
+    assert "screening outcome" in screening_table.field("reason").metadata[b"description"].decode()
+
+
+def test_written_codes_are_dictionary_encoded_labels(written_demo):
+    """Fill quality and rejection reasons are dictionary-encoded strings in the file."""
+    result, folder = written_demo
+    table = pq.read_table(Path(folder) / "timeseries.parquet")
+    for column in ("nee_fill_quality", "rejection_reason", "tair_fill_quality"):
+        assert str(table.schema.field(column).type).startswith("dictionary<values=string")
+    quality = set(table.column("nee_fill_quality").to_pylist())
+    assert quality <= {"measured", "A", "B", "C", "unfilled"} and "measured" in quality
+    reasons = set(table.column("rejection_reason").to_pylist())
+    assert reasons <= set(schema.REASON_LABELS) and {"kept", "missing"} <= reasons
+    # the labels agree with the audit counts made from the same records
+    audit = result.audit.iloc[0]
+    kept = sum(1 for value in table.column("rejection_reason").to_pylist() if value == "kept")
+    assert kept == audit["screening_kept"]
+
+
+def test_units_for_table_covers_a_real_annual_table(written_demo):
+    """No column of the in-memory annual table is left undescribed."""
+    result, _ = written_demo
+    described = units_for_table("annual", result.annual.columns)
+    assert not [c for c, (u, d) in described.items() if not d]
+    assert all(re.fullmatch(r"[\w .\-/^]*", unit) for unit, _ in described.values())

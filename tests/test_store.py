@@ -1,0 +1,142 @@
+"""Parquet tables: metadata every reader sees, labelled codes, atomic writes (issue 15)."""
+
+import json
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pyarrow.parquet as pq
+import pytest
+
+import fluxpart
+from fluxpart.errors import InputFileError
+from fluxpart.schema import file_metadata
+from fluxpart.site import Site
+from fluxpart.store import read_table, write_table
+
+_SITE = Site(name="Fenwick bog (fictional)", latitude=-41.5, longitude=172.25, utc_offset=12.0)
+_UNITS = {"time": ("", "start of the interval"),
+          "nee_filled": ("umol m-2 s-1", "gap-filled NEE of CO2"),
+          "nee_fill_quality": ("", "fill quality")}
+
+
+def _frame() -> pd.DataFrame:
+    index = pd.date_range("2024-01-01", periods=4, freq="30min", name="time")
+    quality = pd.Categorical(["measured", "A", "unfilled", "measured"],
+                             categories=["measured", "A", "B", "C", "unfilled"])
+    return pd.DataFrame({"nee_filled": [1.5, -2.0, np.nan, 0.25], "nee_fill_quality": quality},
+                        index=index)
+
+
+def _write(tmp_path, frame=None, **kwargs) -> Path:
+    path = tmp_path / "table.parquet"
+    write_table(_frame() if frame is None else frame, path, _UNITS, "timeseries", **kwargs)
+    return path
+
+
+def test_file_metadata_holds_site_interval_time_convention_and_units(tmp_path):
+    """The `fluxpart` key-value metadata (JSON) names the site, interval, convention, units."""
+    path = _write(tmp_path, metadata=file_metadata(_SITE, 30))
+    info = json.loads(pq.ParquetFile(path).metadata.metadata[b"fluxpart"])
+    assert info["site"] == {"name": "Fenwick bog (fictional)", "latitude": -41.5,
+                            "longitude": 172.25, "utc_offset": 12.0}
+    assert info["interval_minutes"] == 30
+    assert "start of its averaging interval" in info["time_convention"]
+    assert "local standard time" in info["time_convention"]
+    assert info["columns"]["nee_filled"] == {"unit": "umol m-2 s-1",
+                                             "description": "gap-filled NEE of CO2"}
+    assert info["table"] == "timeseries" and info["index"] == "time"
+
+
+def test_frame_attrs_travel_into_the_file_and_back(tmp_path):
+    """Facts set on `attrs` (as the pipeline does) reach the file; read_table restores them."""
+    frame = _frame()
+    frame.attrs.update(file_metadata(_SITE, 30))
+    path = _write(tmp_path, frame)
+    back = read_table(path)
+    assert back.attrs["site"]["utc_offset"] == 12.0 and back.attrs["interval_minutes"] == 30
+    assert back.attrs["units"]["nee_filled"] == "umol m-2 s-1"
+    assert back.attrs["descriptions"]["nee_fill_quality"] == "fill quality"
+    pd.testing.assert_frame_equal(back, frame, check_freq=False)
+
+
+def test_labels_are_stored_dictionary_encoded_and_read_back(tmp_path):
+    """A categorical column is a dictionary of strings in Parquet and a categorical again."""
+    path = _write(tmp_path)
+    field = pq.read_schema(path).field("nee_fill_quality")
+    assert str(field.type) == "dictionary<values=string, indices=int8, ordered=0>"
+    column = pq.ParquetFile(path).metadata.row_group(0).column(2)
+    assert column.path_in_schema == "nee_fill_quality"
+    assert any("DICTIONARY" in str(e) for e in column.encodings)
+    back = read_table(path)["nee_fill_quality"]
+    assert list(back.cat.categories) == ["measured", "A", "B", "C", "unfilled"]
+
+
+def test_a_row_counter_index_is_not_stored(tmp_path):
+    """Regression (issue 15): a RangeIndex left by reset_index does not leak as `index`."""
+    frame = pd.DataFrame({"bin": [1, 2], "sigma": [0.5, 0.7]}).reset_index(drop=True)
+    frame.index = frame.index.rename("index")
+    path = tmp_path / "bins.parquet"
+    write_table(frame, path, {"bin": ("1", "bin"), "sigma": ("umol m-2 s-1", "s.d.")}, "bins")
+    assert pq.read_schema(path).names == ["bin", "sigma"]
+    assert list(read_table(path).columns) == ["bin", "sigma"]
+
+
+def test_same_content_same_bytes_and_no_temporary_left(tmp_path):
+    """Determinism and atomicity: identical bytes twice, no temporary file beside them."""
+    first = _write(tmp_path, metadata=file_metadata(_SITE, 30)).read_bytes()
+    second = _write(tmp_path, metadata=file_metadata(_SITE, 30)).read_bytes()
+    assert first == second
+    assert [p.name for p in tmp_path.iterdir()] == ["table.parquet"]
+
+
+def test_reading_a_foreign_file_names_it(tmp_path):
+    """A Parquet file without fluxpart metadata is refused with its path named."""
+    path = tmp_path / "foreign.parquet"
+    pd.DataFrame({"a": [1]}).to_parquet(path)
+    with pytest.raises(InputFileError, match="foreign.parquet"):
+        read_table(path)
+
+
+def test_duckdb_sees_units_and_site(written_demo):
+    """DuckDB (a reader modellers use) finds units and the site in `parquet_kv_metadata`."""
+    duckdb = pytest.importorskip("duckdb")
+    _, folder = written_demo
+    path = str(Path(folder) / "annual.parquet")
+    rows = duckdb.sql(f"SELECT key, value FROM parquet_kv_metadata('{path}')").fetchall()
+    meta = {bytes(key).decode() if not isinstance(key, str) else key: value
+            for key, value in rows}
+    value = meta["fluxpart"]
+    info = json.loads(bytes(value).decode() if not isinstance(value, str) else value)
+    assert info["columns"]["nee"]["unit"] == "g m-2"
+    assert "carbon" in info["columns"]["nee"]["description"]
+    assert info["site"]["name"] == fluxpart.demo.site().name
+    assert info["interval_minutes"] == 30
+    labels = duckdb.sql("SELECT DISTINCT nee_fill_quality FROM "
+                        f"'{Path(folder) / 'timeseries.parquet'}'").fetchall()
+    assert {row[0] for row in labels} <= {"measured", "A", "B", "C", "unfilled"}
+
+
+def test_polars_sees_units_and_labels(written_demo):
+    """Polars reads the same key-value metadata and the labels as strings."""
+    polars = pytest.importorskip("polars")
+    _, folder = written_demo
+    path = Path(folder) / "timeseries.parquet"
+    info = json.loads(polars.read_parquet_metadata(path)["fluxpart"])
+    assert info["columns"]["gpp_nighttime"]["unit"] == "umol m-2 s-1"
+    assert info["site"]["utc_offset"] == fluxpart.demo.site().utc_offset
+    frame = polars.read_parquet(path, columns=["nee_fill_quality", "rejection_reason"])
+    assert set(frame["nee_fill_quality"].cast(polars.String).unique()) <= \
+        {"measured", "A", "B", "C", "unfilled"}
+
+
+def test_load_puts_units_into_attrs(written_demo):
+    """`fluxpart.load` gives DataFrames whose attrs carry units, descriptions and the site."""
+    result, folder = written_demo
+    loaded = fluxpart.load(folder)
+    assert loaded.annual.attrs["units"]["nee"] == "g m-2"
+    assert loaded.timeseries.attrs["units"]["nee_filled"] == "umol m-2 s-1"
+    assert loaded.timeseries.attrs["site"]["latitude"] == result.site.latitude
+    assert loaded.timeseries["nee_fill_quality"].dtype == "category"
+    # the in-memory result carries the same attrs as the loaded one
+    assert result.annual.attrs["units"]["nee"] == "g m-2"
