@@ -93,7 +93,7 @@ ABSURD_MAGNITUDE = 1e15
 _DEFAULT_MISSING = (-9999,)
 _DEFAULT_FLAG_ACCEPT = (0,)
 _TOP_LEVEL_KEYS = ("input", "processing", "site")
-_SITE_KEYS = ("latitude", "longitude", "name", "utc_offset")
+_SITE_KEYS = ("canopy", "latitude", "longitude", "name", "utc_offset")
 _SITE_REQUIRED = ("name", "latitude", "longitude", "utc_offset")
 _INPUT_KEYS = ("accept_units", "columns", "decimal", "delimiter", "encoding", "flag_accept",
                "interval_minutes", "missing", "path", "rows_after_header",
@@ -473,7 +473,8 @@ def read_site_config(path) -> SiteConfig:
         if key not in input_table:
             raise ConfigError(f"[input] {key} is missing; " + _INPUT_HELP[key])
     site = Site(name=site_table["name"], latitude=site_table["latitude"],
-                longitude=site_table["longitude"], utc_offset=site_table["utc_offset"])
+                longitude=site_table["longitude"], utc_offset=site_table["utc_offset"],
+                canopy=site_table.get("canopy", "tall"))
 
     input_paths = _resolve_paths(input_table["path"], path.parent)
     time_column = _check_time_column(input_table["time_column"])

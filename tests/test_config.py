@@ -161,3 +161,15 @@ def test_site_range_errors(kwargs, pattern):
     values.update(kwargs)
     with pytest.raises(ConfigError, match=pattern):
         Site(**values)
+
+
+def test_site_config_reads_the_canopy(tmp_path):
+    """[site] canopy in a site TOML reaches the Site; absent, the canopy is tall."""
+    from fluxpart import demo
+    from fluxpart.io import read_site_config
+
+    path = demo.write_example(tmp_path)
+    assert read_site_config(path).site.canopy == "tall"
+    text = path.read_text(encoding="utf-8").replace("[site]\n", '[site]\ncanopy = "short"\n', 1)
+    path.write_text(text, encoding="utf-8")
+    assert read_site_config(path).site.canopy == "short"
