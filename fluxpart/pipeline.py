@@ -305,7 +305,8 @@ def _ustar_thresholds(frame, screened, is_night, site, config):
         frame.index, screened["nee"].to_numpy(), screened["ustar"].to_numpy(),
         screened["tair"].to_numpy(), is_night, site.latitude, detector=config.ustar_method,
         draws=config.ustar_bootstrap_draws, seed=config.seed,
-        min_threshold=config.ustar_min_threshold,
+        min_threshold=(ustar.CANOPY_FLOORS[site.canopy] if config.ustar_min_threshold is None
+                       else config.ustar_min_threshold),
         temperature_classes=config.ustar_temperature_classes,
         ustar_classes=config.ustar_classes, plateau_share=config.ustar_plateau_share,
         correlation_limit=config.ustar_correlation_limit)
@@ -375,9 +376,10 @@ def _per_record(index, per_year: pd.Series) -> np.ndarray:
 def _fill_nee(nee_measured, conditions, index, is_night, config):
     """MDS gap filling of NEE with the configured settings (also scored on artificial gaps)."""
     return gapfill.fill_marginal(
-        nee_measured, conditions, index, rg_tolerance=config.rg_tolerance,
-        tair_tolerance=config.tair_tolerance, vpd_tolerance=config.vpd_tolerance,
-        max_window_days=config.gapfill_max_window_days)
+        nee_measured, conditions, index, is_night=is_night, donors=config.gapfill_donors,
+        rg_tolerance=config.rg_tolerance, tair_tolerance=config.tair_tolerance,
+        vpd_tolerance=config.vpd_tolerance, max_window_days=config.gapfill_max_window_days,
+        min_donors=config.gapfill_min_donors)
 
 
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
@@ -492,7 +494,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                         f"ustar_threshold = {config.ustar_threshold} m s-1 was used there")
 
     filled_drivers = gapfill.fill_drivers(
-        screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days)
+        screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days,
+        interpolation_hours=config.gapfill_interpolation_hours)
     conditions = gapfill.driver_conditions(filled_drivers)
 
     runs = {"central": _per_record(frame.index, central)}
