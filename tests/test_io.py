@@ -1213,4 +1213,27 @@ def test_input_record_of_several_files(tmp_path):
     joint = "".join(f"tower_{x}.csv\t{_sha256(tmp_path / f'tower_{x}.csv')}\n" for x in "ab")
     assert record["sha256"] == hashlib.sha256(joint.encode()).hexdigest()
     _, report = site_config.read()
-    assert report.to_dict()["files"] == [str(p) for p in site_config.input_paths]
+    assert report.to_dict()["files"] == ["tower_a.csv", "tower_b.csv"]
+
+
+def test_messy_logger_example_reads_to_the_demo_year(tmp_path):
+    """examples/make_logger_example.py (every layout setting at once) reads back to the
+    invented demo year it was written from, within the rounding of the files."""
+    import importlib.util
+    from pathlib import Path
+
+    from fluxpart import demo
+
+    script = Path(__file__).resolve().parent.parent / "examples" / "make_logger_example.py"
+    spec = importlib.util.spec_from_file_location("make_logger_example", script)
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    frame, report = read_site_config(module.write_logger_example(tmp_path)).read()
+    truth, _ = demo.site_year(3, variant="c4")
+    # rounding of the files: NEE and storage 0.001, rh 0.1 (vpd from it), ppfd 0.01
+    for name, tolerance in {"nee": 1.1e-3, "rg": 0.01, "tair": 0.006, "ustar": 6e-4,
+                            "tsoil": 0.006, "rh": 0.051, "vpd": 0.05}.items():
+        np.testing.assert_allclose(frame[name], truth[name], atol=tolerance, err_msg=name)
+    assert (frame["nee_flag"] >= (truth["nee_flag"] != 0)).all()
+    assert report.duplicate_rows == 3 and report.merged_rows == 48
+    assert report.stamp_conversions["hour_24"] == 365 + 1
