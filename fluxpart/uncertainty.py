@@ -76,6 +76,7 @@ __all__ = [
     "artificial_gap_errors",
     "carbon_accounting_units",
     "draw_random_errors",
+    "driver_weight",
     "e0_sensitivity",
     "e0_sigma",
     "gap_runs",
@@ -171,8 +172,10 @@ ANNUAL_COLUMNS: dict[str, tuple[str, str]] = {
     "reco_uncertainty_temperature_driver": (_CARBON, "1 sigma: structural error of Reco and GPP "
                                             "from the choice of respiration temperature: "
                                             "|nighttime Reco with the other temperature - "
-                                            "nighttime Reco| / sqrt(2); shown beside the totals, "
-                                            "NOT in them (NaN without soil temperature)"),
+                                            "nighttime Reco| x sqrt(w), w the weight the night "
+                                            "data give the other temperature (BIC); in the "
+                                            "totals of all partitioned fluxes (NaN without "
+                                            "soil temperature)"),
     "reco_uncertainty_partitioning": (_CARBON, "1 sigma: structural error of Reco estimated as "
                                       "|daytime - nighttime| / sqrt(2); in the totals of both "
                                       "methods"),
@@ -1135,6 +1138,9 @@ class UncertaintyInputs:
     driver_delta : numpy.ndarray or None
         Nighttime Reco with the other respiration temperature (air or soil) minus
         the central Reco [µmol m-2 s-1]; None where only one temperature exists.
+    driver_weight : float
+        Probability that the other temperature is the better respiration driver
+        (:func:`driver_weight`) [1].
     """
 
     measured: np.ndarray
@@ -1149,11 +1155,62 @@ class UncertaintyInputs:
     day_window: np.ndarray
     day_relative_se: np.ndarray
     driver_delta: np.ndarray | None = None
+    driver_weight: float = 0.0
+
+
+def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
+    """Probability that the other respiration temperature describes the night data better.
+
+    Parameters
+    ----------
+    nee_measured : array_like
+        Measured night NEE after the u* filter [µmol m-2 s-1] (NaN elsewhere).
+    is_night : array_like of bool
+    reco_central, reco_other : array_like
+        Nighttime Reco with the configured and with the other temperature
+        [µmol m-2 s-1].
+
+    Returns
+    -------
+    float
+        w = 1 / (1 + exp(ΔBIC / 2)) with ΔBIC = n ln(SSR_other / SSR_central) over
+        the n night records both models cover (equal parameter counts): the
+        posterior weight of the other model under equal priors (Schwarz 1978;
+        Burnham & Anderson 2002, ch. 6). 0 when fewer than 10 records are shared.
+
+    Notes
+    -----
+    Night residuals are autocorrelated, which makes n overstate the evidence:
+    the weight is then too decisive, but decides in the direction the data
+    favour. The annual error from the choice has second moment w·d² about the
+    configured estimate, d being the difference the other driver makes; that is
+    the part :func:`period_uncertainty` adds.
+
+    References
+    ----------
+    Schwarz, G. (1978). Estimating the dimension of a model. Annals of Statistics
+    6, 461–464. Burnham, K. P. & Anderson, D. R. (2002). Model Selection and
+    Multimodel Inference, 2nd ed. Springer.
+    """
+    nee = np.asarray(nee_measured, dtype=float)
+    central = np.asarray(reco_central, dtype=float)
+    other = np.asarray(reco_other, dtype=float)
+    use = (np.asarray(is_night, dtype=bool) & np.isfinite(nee) & np.isfinite(central)
+           & np.isfinite(other))
+    if use.sum() < 10:
+        return 0.0
+    ssr_central = float(np.sum(np.square(nee[use] - central[use])))
+    ssr_other = float(np.sum(np.square(nee[use] - other[use])))
+    if ssr_central <= 0 or ssr_other <= 0:
+        return 0.0
+    half_delta_bic = 0.5 * use.sum() * np.log(ssr_other / ssr_central)
+    return float(1.0 / (1.0 + np.exp(np.clip(half_delta_bic, -700.0, 700.0))))
 
 
 def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma, is_night,
                   temperature, nighttime_result, daytime_parameters, gapfill_model, *,
-                  rref_window_days=4.0, other_driver_reco=None) -> UncertaintyInputs:
+                  rref_window_days=4.0, other_driver_reco=None,
+                  nee_measured=None) -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -1183,6 +1240,9 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         Length of the nighttime Rref windows [days] (blocks of the E0 sensitivity).
     other_driver_reco : array_like, optional
         Nighttime Reco computed with the other respiration temperature [µmol m-2 s-1].
+    nee_measured : array_like, optional
+        Measured NEE [µmol m-2 s-1], for :func:`driver_weight` (needed with
+        `other_driver_reco`).
 
     Returns
     -------
@@ -1205,7 +1265,9 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         e0_delta=delta, night_window=night_window, night_relative_se=night_se,
         day_window=day_window, day_relative_se=day_se,
         driver_delta=None if other_driver_reco is None else
-        np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float))
+        np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
+        driver_weight=0.0 if other_driver_reco is None else driver_weight(
+            nee_measured, is_night, fluxes["reco_nighttime"].to_numpy(float), other_driver_reco))
 
 
 def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
@@ -1254,13 +1316,13 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       GPP: the same Reco error over the daylight records, because the fitted
       daytime NEE is held by the data, so an error of the respiration term is
       an equal error of GPP. Nighttime GPP = Reco − NEE takes the parts of both.
-    - respiration temperature (shown, **not** in the totals; where both air and
-      soil temperature exist): |Reco(other temperature) − Reco| / √2 of the
-      nighttime method. Both methods use the same temperature, so a wrong choice
-      moves both alike and the method difference cannot reveal it. Taken into the
-      totals it widened the demo's Reco interval to ±28 % although air
-      temperature was the true driver, so it is reported beside them for the
-      user's judgement.
+    - respiration temperature (structural, where both air and soil temperature
+      exist): √w · |Σ(Reco(other temperature) − Reco)| of the nighttime method,
+      w the weight the night data give the other temperature
+      (:func:`driver_weight`). Both methods use the same temperature, so a wrong
+      choice moves both alike and the method difference cannot reveal it; the
+      part is added to all four partitioned fluxes (GPP moves with Reco, NEE
+      being fixed by the data).
     - partitioning (structural): |daytime − nighttime| / √2 for GPP and for Reco,
       added to both methods: if the two methods' errors are independent with a
       common standard deviation s, their difference has standard deviation
@@ -1349,7 +1411,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         method[kind] = difference.abs() / np.sqrt(2.0)
         out[f"{kind}_uncertainty_partitioning"] = method[kind]
     if inputs.driver_delta is not None:
-        driver = per_period(np.nan_to_num(inputs.driver_delta)).abs() * factor / np.sqrt(2.0)
+        driver = per_period(np.nan_to_num(inputs.driver_delta)).abs() * factor \
+            * np.sqrt(inputs.driver_weight)
     else:
         driver = pd.Series(np.nan, index=index)
     out["reco_uncertainty_temperature_driver"] = driver
@@ -1361,14 +1424,14 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     nee_parts = [out["nee_uncertainty_random"], out["nee_uncertainty_gapfill"], ustar["nee"]]
     out["nee_uncertainty_total"] = total(*nee_parts)
     out["reco_nighttime_uncertainty_total"] = total(
-        ustar["reco_nighttime"], parameters["reco_nighttime"], method["reco"])
+        ustar["reco_nighttime"], parameters["reco_nighttime"], method["reco"], driver)
     out["gpp_nighttime_uncertainty_total"] = total(
-        ustar["gpp_nighttime"], parameters["gpp_nighttime"], method["gpp"],
+        ustar["gpp_nighttime"], parameters["gpp_nighttime"], method["gpp"], driver,
         out["nee_uncertainty_random"], out["nee_uncertainty_gapfill"])
     out["reco_daytime_uncertainty_total"] = total(
-        ustar["reco_daytime"], parameters["reco_daytime"], method["reco"])
+        ustar["reco_daytime"], parameters["reco_daytime"], method["reco"], driver)
     out["gpp_daytime_uncertainty_total"] = total(
-        ustar["gpp_daytime"], parameters["gpp_daytime"], method["gpp"])
+        ustar["gpp_daytime"], parameters["gpp_daytime"], method["gpp"], driver)
     for flux in _FLUXES:
         out[f"{flux}_sigma"] = out[f"{flux}_uncertainty_total"].where(carbon[flux].notna())
     return out

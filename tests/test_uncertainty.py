@@ -431,3 +431,18 @@ def test_tonnes_co2_per_hectare_against_the_handbook_value():
         0.5 * values["co2_per_carbon"] * 0.01, rel=1e-6)
     with pytest.raises(MissingColumnError, match="nee"):
         carbon_accounting_units(annual.drop(columns="nee"))
+
+
+def test_driver_weight_favours_the_temperature_that_fits_the_night_data():
+    """BIC weight (Schwarz 1978): the better-fitting model gets weight near 1, equal fits 0.5."""
+    from fluxpart.uncertainty import driver_weight
+
+    rng = np.random.default_rng(4)
+    truth = 2.0 + np.sin(np.arange(500) / 30.0)
+    nee = truth + rng.normal(0, 0.3, truth.size)
+    night = np.ones(truth.size, dtype=bool)
+    worse = truth + 0.5
+    assert driver_weight(nee, night, truth, worse) < 1e-6
+    assert driver_weight(nee, night, worse, truth) > 1 - 1e-6
+    assert driver_weight(nee, night, truth, truth) == pytest.approx(0.5)
+    assert driver_weight(nee[:5], night[:5], truth[:5], worse[:5]) == 0.0
