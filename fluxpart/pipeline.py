@@ -602,10 +602,29 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                                 "reco_nighttime": n.reco, "gpp_daytime": d.gpp,
                                 "reco_daytime": d.reco}, index=index)
             for name, (_, _, filled, n, d) in outcomes.items()}
+    other = {"tair": "tsoil", "tsoil": "tair"}[temperature]
+    other_reco = None
+    if f"{other}_filled" in timeseries.columns and other in timeseries.columns:
+        try:
+            other_reco = nighttime.partition_nighttime(
+                index, nee_measured, timeseries["nee_filled"].to_numpy(dtype=float),
+                timeseries[other].to_numpy(dtype=float),
+                timeseries[f"{other}_filled"].to_numpy(dtype=float), is_night,
+                e0_window_days=config.e0_window_days,
+                e0_window_step_days=config.e0_window_step_days,
+                e0_min_points=config.e0_min_points,
+                e0_min_temperature_range=config.e0_min_temperature_range,
+                e0_bounds=config.e0_bounds, e0_max_relative_error=config.e0_max_relative_error,
+                e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
+                rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
+                respiration_driver=other).reco
+        except FluxpartError:
+            other_reco = None
     inputs = uncertainty.record_inputs(
         index, runs["central"], runs if len(runs) > 1 else {}, measured, noise, is_night,
         timeseries[f"{temperature}_filled"].to_numpy(dtype=float), night, day.parameters,
-        gapfill_model, rref_window_days=config.rref_window_days)
+        gapfill_model, rref_window_days=config.rref_window_days, other_driver_reco=other_reco,
+        nee_measured=nee_measured)
     percentiles = config.ustar_scenarios
     tables = []
     for table, keys in ((daily, index.normalize()),
