@@ -76,6 +76,9 @@ _CRITICAL_VALUE_SEED = 20130215
 _CRITICAL_VALUE_SIMULATIONS = 10000
 # Bootstrap draws processed together (bounds memory); the results do not depend on it.
 _DRAWS_PER_CHUNK = 10
+# Numbering of (draw, year) as one pseudo-year, draw offset x stride + year, when the
+# annual thresholds of a chunk of draws are found in one call; above any calendar year.
+_YEAR_STRIDE = 100_000
 
 
 @dataclass(frozen=True)
@@ -1030,23 +1033,27 @@ def _bootstrap(data: _NightData, detector, options, draws, seed) -> pd.DataFrame
             core = _change_point_core(resampled.nee, resampled.ustar, resampled.tair, group,
                                       resampled.groups, options, statistics=False)
         floor = options["min_threshold"]
-        seasonal = _floored(core["seasonal"], floor).reshape(chunk, n_groups)
-        for offset in range(chunk):
-            part = slice(offset * n_groups, (offset + 1) * n_groups)
-            sub = {key: (value[part] if isinstance(value, np.ndarray) else value)
-                   for key, value in core.items() if key != "strata"}
-            annual = _annual(groups, sub, detector, floor)
-            draw = first + offset
-            rows.append(pd.DataFrame({"draw": draw, "year": groups["year"].to_numpy(),
-                                      "period": groups["season"].to_numpy(),
-                                      "threshold": seasonal[offset]}))
-            rows.append(pd.DataFrame({"draw": draw, "year": annual["year"].to_numpy(),
-                                      "period": "year", "threshold": annual["threshold"]}))
+        draw = first + np.repeat(np.arange(chunk), n_groups)
+        rows.append((draw, np.tile(groups["year"].to_numpy(), chunk),
+                     np.tile(groups["season"].to_numpy(dtype=object), chunk),
+                     _floored(core["seasonal"], floor)))
+        # the annual values of every draw of the chunk in one call: each (draw, year)
+        # is a year of its own, numbered draw offset x stride + year
+        pseudo = resampled.groups.assign(
+            year=np.repeat(np.arange(chunk), n_groups) * _YEAR_STRIDE
+            + np.tile(groups["year"].to_numpy(), chunk))
+        annual = _annual(pseudo, {key: value for key, value in core.items() if key != "strata"},
+                         detector, floor)
+        pseudo_year = annual["year"].to_numpy()
+        rows.append((first + pseudo_year // _YEAR_STRIDE, pseudo_year % _YEAR_STRIDE,
+                     np.full(len(annual), "year", dtype=object),
+                     annual["threshold"].to_numpy(dtype=float)))
     if not rows:
         return pd.DataFrame({"draw": pd.Series(dtype=np.int64), "year": pd.Series(dtype=np.int64),
                              "period": pd.Series(dtype="str"),
                              "threshold": pd.Series(dtype=float)})
-    table = pd.concat(rows, ignore_index=True)
+    table = pd.DataFrame({name: np.concatenate([row[i] for row in rows])
+                          for i, name in enumerate(("draw", "year", "period", "threshold"))})
     rank = table["period"].map({"year": 0, **{s: i + 1 for i, s in enumerate(SEASONS)}})
     table = (table.assign(_rank=rank).sort_values(["draw", "year", "_rank"], kind="stable")
              .drop(columns="_rank").reset_index(drop=True))
