@@ -1087,7 +1087,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                                               if rows_before_header else "")) from None
     except pd.errors.ParserError as error:
         raise InputFileError(f"input file {str(path)!r} cannot be parsed with delimiter "
-                             f"{delimiter!r}: {str(error).strip()}") from None
+                             f"{delimiter!r}: {' '.join(str(error).split())}") from None
     blank = (raw.apply(lambda column: column.str.strip()) == "").all(axis=1).to_numpy() \
         if raw.shape[1] else np.ones(len(raw), dtype=bool)
     lines = np.arange(len(raw)) + rows_before_header + rows_after_header + 2
@@ -1096,6 +1096,21 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     if raw.empty:
         raise InputFileError(f"input file {str(path)!r} has a header but no records")
     return raw, lines, [str(h) for h in header]
+
+
+def _check_header_line(raw: pd.DataFrame, text: str, delimiter: str, time_columns: tuple,
+                       rows_before_header: int, path: Path) -> None:
+    """Raise with the right ``rows_before_header`` when the header is on another line."""
+    if time_columns[0] in raw.columns:
+        return
+    separator = None if delimiter == _WHITESPACE else delimiter
+    for number, line in enumerate(text.splitlines()[:50]):
+        cells = [cell.strip().strip('"') for cell in line.split(separator)]
+        if number != rows_before_header and time_columns[0] in cells:
+            raise MissingColumnError(
+                f"[input] time_column = {time_columns[0]!r} is not in the header read from "
+                f"line {rows_before_header + 1} of {str(path)!r} but on line {number + 1}: set "
+                f"[input] rows_before_header = {number}")
 
 
 def _flag_key(column: str) -> str:
@@ -1109,6 +1124,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     text, used_encoding = _decode(path, encoding)
     raw, lines, header = _read_text(path, text, delimiter, rows_before_header,
                                     rows_after_header)
+    _check_header_line(raw, text, delimiter, time_columns, rows_before_header, path)
     mapping, flag_columns = _resolve_columns(columns, units, list(raw.columns), header,
                                              time_columns, flag_columns, path)
     source = str(path)

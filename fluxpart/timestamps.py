@@ -99,7 +99,7 @@ def _to_datetime(text: pd.Series, time_format: str, utc: bool) -> pd.Series:
         return pd.to_datetime(text, format=time_format, errors="coerce", utc=utc)
     except (ValueError, TypeError) as error:
         raise TimestampError(f"[input] time_format = {time_format!r} cannot be used: "
-                             f"{error}") from None
+                             f"{' '.join(str(error).split())}") from None
 
 
 def _carries_offset(text: pd.Series, time_format: str) -> bool:

@@ -1237,3 +1237,14 @@ def test_messy_logger_example_reads_to_the_demo_year(tmp_path):
     assert (frame["nee_flag"] >= (truth["nee_flag"] != 0)).all()
     assert report.duplicate_rows == 3 and report.merged_rows == 48
     assert report.stamp_conversions["hour_24"] == 365 + 1
+
+
+def test_header_on_another_line_names_rows_before_header(tmp_path):
+    """A title line above the header (or a wrong count) names the setting that fixes it."""
+    path = _write(tmp_path / "t.csv", _records())
+    path.write_text("station 4, program 2\n" + path.read_text())
+    with pytest.raises(MissingColumnError, match=r"on line 2: set \[input\] rows_before_header "
+                                                 r"= 1"):
+        _read(path)
+    frame, _ = _read(path, rows_before_header=1)
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, _records()))
