@@ -1,8 +1,11 @@
 """Benchmark of daytime partitioning: time per site-year, and the batched fit vs SciPy.
 
-Run: ``cd /work/main && /work/venv/bin/python tests/benchmarks/bench_daytime.py``.
+Run: ``cd /work/main && .venv/bin/python tests/benchmarks/bench_daytime.py``.
 Not collected by pytest (no ``test_`` prefix). Prints figures; asserts nothing.
-The data are the invented known-truth records of tests/test_daytime.py.
+The data are the invented known-truth records of tests/test_daytime.py. Three
+variants per record: E0 supplied (the light-response fit alone), E0 estimated from
+night data per window (the default), and that plus weighting by a random-error
+model (two passes).
 """
 
 from __future__ import annotations
@@ -78,12 +81,26 @@ def main():
         ("site-year, C4-like, 30 min", dict(c4=True), 1.0),
         ("3 site-years, 30 min", dict(days=1096), 1096 / 365),
     ]
+    variants = {
+        "E0 supplied": lambda inputs: partition_daytime(**inputs),
+        "E0 from night": lambda inputs: partition_daytime(
+            **{k: v for k, v in inputs.items() if k != "e0"}),
+        "E0 from night, weighted": lambda inputs: partition_daytime(
+            **{k: v for k, v in inputs.items() if k != "e0"},
+            random_error=lambda nee: 0.6 + 0.15 * np.abs(nee)),
+    }
     for label, options, years in cases:
         record = _synthetic_record(0, **options)
-        seconds, result = _best_time(lambda record=record: partition_daytime(**_inputs(record)))
-        windows = len(result.parameters)
-        print(f"{label:28s} {seconds * 1e3:8.1f} ms  = {seconds / years * 1e3:7.1f} ms per "
-              f"site-year, {windows} windows, {result.parameters.accepted.mean():.0%} accepted")
+        for variant, run in variants.items():
+            seconds, result = _best_time(lambda record=record, run=run: run(_inputs(record)))
+            windows = result.parameters
+            gpp = np.nansum(result.gpp) / np.sum(record["gpp_true"]) - 1
+            reco = np.nansum(result.reco) / np.sum(record["reco_true"]) - 1
+            shares = windows.status.value_counts(normalize=True)
+            print(f"{label:27s} {variant:24s} {seconds * 1e3:7.1f} ms = "
+                  f"{seconds / years * 1e3:6.1f} ms/site-year; {len(windows)} windows, "
+                  f"{shares.get('accepted', 0):.0%} accepted, {shares.get('replaced', 0):.0%} "
+                  f"replaced; GPP {gpp:+.1%}, Reco {reco:+.1%}")
     record = _synthetic_record(0)
     batched, result = _best_time(lambda: partition_daytime(**_inputs(record)))
     single, fitted = _best_time(lambda: _scipy_per_window(record, result.parameters), repeats=2)
