@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass
-from datetime import timedelta
+from datetime import datetime, timedelta
 
 import numpy as np
 import pandas as pd
@@ -31,6 +31,7 @@ from .errors import (
 __all__ = [
     "INTERVALS_MINUTES",
     "ParsedStamps",
+    "budget_years",
     "check_order",
     "check_time_zone",
     "clock_alignment_warning",
@@ -386,3 +387,62 @@ def inserted_runs(inserted: pd.DatetimeIndex, interval_minutes: int) -> tuple[tu
     ranges = tuple((inserted[s], inserted[e], int(e - s + 1))
                    for s, e in zip(starts[:_RANGES_SHOWN], ends[:_RANGES_SHOWN], strict=True))
     return ranges, len(starts)
+
+
+def budget_years(index, year_start: str = "01-01") -> pd.DataFrame:
+    """Budget year of each interval start, for budgets that run from `year_start`.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Interval starts in local standard time.
+    year_start : str
+        First day of the budget year as ``"MM-DD"`` (``"01-01"``: calendar years;
+        ``"07-01"``: July to June, a southern-hemisphere growing season).
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per record (same index): ``year`` (int, the calendar year in which
+        the record's budget year starts), ``period_start`` and ``period_end`` (the
+        first day of that budget year and the first day of the next).
+
+    Raises
+    ------
+    ConfigError
+        `year_start` is not a valid ``"MM-DD"`` day (29 February is refused: it is
+        not in every year).
+
+    Notes
+    -----
+    DESIGN.md §4.1 "Budget year": an interval belongs to the budget year in which
+    it starts, as a day belongs to the date on which its intervals start.
+
+    Examples
+    --------
+    >>> index = pd.DatetimeIndex(["2021-06-30 23:30", "2021-07-01 00:00"])
+    >>> budget_years(index, "07-01")["year"].tolist()
+    [2020, 2021]
+    """
+    month, day = _month_day(year_start)
+    index = pd.DatetimeIndex(index)
+    before = (index.month < month) | ((index.month == month) & (index.day < day))
+    years = np.asarray(index.year, dtype=np.int64) - before.astype(np.int64)
+    starts = pd.to_datetime({"year": years, "month": month, "day": day})
+    ends = pd.to_datetime({"year": years + 1, "month": month, "day": day})
+    return pd.DataFrame({"year": years, "period_start": starts.to_numpy(),
+                         "period_end": ends.to_numpy()}, index=index)
+
+
+def _month_day(year_start) -> tuple[int, int]:
+    match = re.fullmatch(r"(\d{2})-(\d{2})", year_start) if isinstance(year_start, str) else None
+    if match:
+        month, day = int(match[1]), int(match[2])
+        try:
+            datetime(2021, month, day)  # a year without 29 February
+            return month, day
+        except ValueError:
+            pass
+    raise ConfigError(f"[processing] year_start = {year_start!r}: expected a day of the year as "
+                      "\"MM-DD\", e.g. \"07-01\" (29 February is not in every year)")
+

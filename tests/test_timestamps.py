@@ -1,0 +1,79 @@
+"""Tests of fluxpart.timestamps (stamp parsing helpers and budget years).
+
+The reader's layouts are tested end to end in tests/test_io.py; these pin the pure
+helpers against outside facts: the calendar (Python's datetime) and the IANA zone
+database (the standard library's zoneinfo).
+"""
+
+from datetime import datetime, timedelta
+from zoneinfo import ZoneInfo
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.errors import ConfigError, SpacingError
+from fluxpart.timestamps import budget_years, check_time_zone, infer_interval, parse_stamps
+
+
+def test_budget_years_calendar_default():
+    """Default "01-01": the budget year is the calendar year of each interval start."""
+    index = pd.date_range("2020-12-31 23:00", periods=4, freq="30min")
+    table = budget_years(index)
+    assert table["year"].tolist() == [2020, 2020, 2021, 2021]
+    assert table["period_start"].iloc[2] == pd.Timestamp("2021-01-01")
+    assert table["period_end"].iloc[2] == pd.Timestamp("2022-01-01")
+
+
+def test_budget_years_southern_season():
+    """"07-01": July to June; a year keeps the calendar year in which it starts."""
+    index = pd.DatetimeIndex(["2021-06-30 23:30", "2021-07-01 00:00", "2022-02-28 12:00"])
+    table = budget_years(index, "07-01")
+    assert table["year"].tolist() == [2020, 2021, 2021]
+    # a budget year is 365 or 366 days by the calendar (Python's datetime)
+    length = (table["period_end"] - table["period_start"]).dt.days.tolist()
+    assert length == [(datetime(2021, 7, 1) - datetime(2020, 7, 1)).days, 365, 365]
+
+
+@pytest.mark.parametrize("value", ["7-1", "02-29", "13-01", "07/01", 701])
+def test_budget_years_bad_setting(value):
+    """A year_start that is not an MM-DD day of every year names the setting."""
+    with pytest.raises(ConfigError, match=r"\[processing\] year_start"):
+        budget_years(pd.DatetimeIndex(["2021-01-01"]), value)
+
+
+def test_check_time_zone_standard_offset_from_zoneinfo():
+    """The zone's standard offset is read from zoneinfo (utcoffset - dst), both hemispheres."""
+    for zone, offset in (("Europe/Berlin", 1.0), ("Australia/Sydney", 10.0),
+                         ("America/New_York", -5.0)):
+        january = datetime(2021, 1, 15, tzinfo=ZoneInfo(zone))
+        expected = (january.utcoffset() - january.dst()) / timedelta(hours=1)
+        assert expected == offset
+        assert check_time_zone(zone, offset) == zone
+    with pytest.raises(ConfigError, match=r"UTC-5 but \[site\] utc_offset = -4"):
+        check_time_zone("America/New_York", -4.0)
+
+
+def test_parse_stamps_daylight_saving_against_zoneinfo():
+    """Civil stamps across the autumn change map to UTC as zoneinfo says (fold 0 then 1)."""
+    zone = ZoneInfo("Europe/Berlin")
+    text = pd.Series(["2021-10-31 01:30", "2021-10-31 02:00", "2021-10-31 02:30",
+                      "2021-10-31 02:00", "2021-10-31 02:30", "2021-10-31 03:00"])
+    parsed = parse_stamps(text, "%Y-%m-%d %H:%M", time_columns=("t",), source="f",
+                          lines=np.arange(6) + 2, utc_offset=1.0, time_zone="Europe/Berlin")
+    expected = []
+    for position, cell in enumerate(text):
+        fold = 1 if position in (3, 4) else 0  # second occurrence: standard time
+        local = datetime.strptime(cell, "%Y-%m-%d %H:%M").replace(tzinfo=zone, fold=fold)
+        expected.append(local.astimezone(ZoneInfo("UTC")).replace(tzinfo=None)
+                        + timedelta(hours=1))
+    assert list(parsed.stamps) == [pd.Timestamp(e) for e in expected]
+    assert ((parsed.stamps[1:] - parsed.stamps[:-1]) == pd.Timedelta(minutes=30)).all()
+
+
+def test_infer_interval():
+    """The most common spacing is the interval; other spacings refuse."""
+    stamps = pd.date_range("2021-01-01", periods=10, freq="60min")
+    assert infer_interval(stamps) == 60
+    with pytest.raises(SpacingError, match="most common spacing between stamps is 15"):
+        infer_interval(pd.date_range("2021-01-01", periods=10, freq="15min"))
