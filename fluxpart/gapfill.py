@@ -392,9 +392,14 @@ def _full_width_days(step: int, half_width_days: int) -> float:
 # --------------------------------------------------------------------------- kernels
 
 def _ranked(window):
-    """Integer ranks of ``window`` (smallest dtype that holds them) and its sorted values."""
+    """Integer ranks of ``window`` and its sorted values.
+
+    The rank dtype is the smallest that holds ``window.size``, the largest bound
+    ``searchsorted`` can return (a dtype holding only the ranks 0 .. size - 1
+    wraps that bound to 0 when the size is a power of 2 such as 256).
+    """
     order = np.argsort(window)
-    rank = np.empty(window.size, dtype=np.min_scalar_type(max(window.size - 1, 0)))
+    rank = np.empty(window.size, dtype=np.min_scalar_type(window.size))
     rank[order] = np.arange(window.size)
     return rank, window[order]
 

@@ -689,3 +689,21 @@ def test_donor_rule_settings_are_checked():
         fill_marginal(np.ones(n), _drivers(n), _index(n), min_donors=0)
     with pytest.raises(ConfigError, match="gapfill_interpolation_hours"):
         fill_drivers(_drivers(n).set_index(_index(n)), interpolation_hours=-1.0)
+
+
+def test_similarity_with_256_usable_records():
+    """A window of exactly 256 usable records: the upper rank bound must not wrap to 0.
+
+    Regression (issue 11): ranks were stored in the smallest dtype holding 0..255, and
+    the bound 256 wrapped to 0, so step 1 found nothing. The per-gap oracle decides.
+    """
+    n = 300
+    values = np.full(n, np.nan)
+    values[:256] = np.linspace(1.0, 2.0, 256)
+    rg = np.linspace(0.0, 255.0, n)
+    drivers = _drivers(n, rg, 10.0, 2.0)
+    out = fill_marginal(values, drivers, _index(n))
+    expected = oracle_fill_marginal(values, drivers, _index(n), is_night=np.zeros(n, dtype=bool),
+                                    min_donors=1)
+    assert (out["method"].iloc[256:] == 1).all()
+    _assert_same_fill(out, expected)
