@@ -24,37 +24,40 @@ def _format_annual(annual) -> str:
     lines = ["Annual budget [g C m-2; NEE < 0 is net uptake; share_measured of records]:",
              annual[columns].to_string(float_format=lambda v: f"{v:9.2f}")]
     rows = []
+    nan = float("nan")
     for year, row in annual.iterrows():
-        for flux, random, partitioning in (
-                ("nee", "nee_uncertainty_random", None),
-                ("gpp_nighttime", "gpp_nighttime_uncertainty_random",
-                 "gpp_uncertainty_partitioning"),
-                ("reco_nighttime", None, "reco_uncertainty_partitioning"),
-                ("gpp_daytime", None, "gpp_uncertainty_partitioning"),
-                ("reco_daytime", None, "reco_uncertainty_partitioning")):
+        for flux in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
             total = f"{flux}_uncertainty_total"
             if total not in annual.columns:
                 continue
-            rows.append({"year": year, "flux": flux,
-                         "random": row.get(random, float("nan")) if random else float("nan"),
-                         "ustar": row.get(f"{flux}_uncertainty_ustar", float("nan")),
-                         "partitioning": row.get(partitioning, float("nan"))
-                         if partitioning else float("nan"),
-                         "total": row[total]})
+            kind = flux.split("_")[0]
+            rows.append({
+                "year": year, "flux": flux,
+                "random": row.get("nee_uncertainty_random", nan)
+                if flux in ("nee", "gpp_nighttime") else nan,
+                "gap filling": row.get("nee_uncertainty_gapfill", nan)
+                if flux in ("nee", "gpp_nighttime") else nan,
+                "ustar": row.get(f"{flux}_uncertainty_ustar", nan),
+                "parameters": row.get(f"{flux}_uncertainty_parameters", nan),
+                "partitioning": row.get(f"{kind}_uncertainty_partitioning", nan)
+                if kind != "nee" else nan,
+                "total": row[total],
+                "ci95_low": row.get(f"{flux}_ci95_low", nan),
+                "ci95_high": row.get(f"{flux}_ci95_high", nan)})
     if rows:
         import pandas as pd
 
         table = pd.DataFrame(rows).set_index(["year", "flux"])
-        lines += ["", "Uncertainty budget [g C m-2]: random (Monte Carlo s.d.), u* threshold "
-                  "and partitioning method (half-ranges), total (root sum of squares); "
-                  "systematic errors not included:",
+        lines += ["", "Uncertainty [g C m-2]: parts and total as 1 sigma (root sum of squares), "
+                  "and the stated 95 % interval; systematic measurement errors not included "
+                  "(see the README's cautions):",
                   table.to_string(float_format=lambda v: f"{v:9.1f}", na_rep="        -")]
     if "net_uptake_t_co2_per_ha" in annual.columns:
         lines += ["", "Net uptake [t CO2 ha-1 per year; positive = uptake]:"]
         for year, row in annual.iterrows():
             lines.append(f"  {year}: {row['net_uptake_t_co2_per_ha']:.2f} ± "
-                         f"{row['net_uptake_t_co2_per_ha_uncertainty']:.2f} "
-                         f"(u* threshold {row['ustar_threshold']:.3f} m s-1)")
+                         f"{row['net_uptake_t_co2_per_ha_uncertainty']:.2f} (1 sigma; "
+                         f"u* threshold {row['ustar_threshold']:.3f} m s-1)")
     return "\n".join(lines)
 
 
