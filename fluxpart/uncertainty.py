@@ -20,7 +20,9 @@ sum of squares and the annual interval is ``sum ± 1.96 σ`` (DESIGN.md §4.1):
 4. **Fitted parameters**: E0 (its standard error, propagated through the
    night-to-day extrapolation, :func:`e0_sensitivity`) and the reference
    respiration of every window (:func:`window_membership`).
-5. **Partitioning structure** (GPP and Reco): |daytime − nighttime| / √2.
+5. **Partitioning structure** (GPP and Reco): |daytime − nighttime| / √2, and
+   where air and soil temperature are both measured the choice of respiration
+   temperature, weighted by how well each fits the night data (:func:`driver_weight`).
 
 :func:`period_uncertainty` computes the parts per day, month or year;
 :func:`uncertainty_budget` adds the annual intervals; :func:`carbon_accounting_units`
