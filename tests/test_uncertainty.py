@@ -299,6 +299,7 @@ def test_uncertainty_budget_combines_parts_and_states_a_95_percent_interval():
     out = uncertainty_budget(annual, _one_year(_RANDOM), parts)
     row = out.loc[2021]
     z = stats.norm.ppf(0.975)
+    assert z == pytest.approx(REFERENCE["interval"]["z_975"], abs=1e-6)
     assert row["nee_uncertainty_total"] == pytest.approx(5.0)
     assert row["nee_ci95_low"] == pytest.approx(-200.0 - z * 5.0)
     assert row["nee_ci95_high"] == pytest.approx(-200.0 + z * 5.0)
