@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import io
 import re
+import textwrap
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -174,10 +175,10 @@ class Drawing:
         canvas.draw()
         image = Image.frombuffer("RGBA", canvas.get_width_height(), canvas.buffer_rgba(),
                                  "raw", "RGBA", 0, 1).convert("RGB")
-        palette = image.quantize(colors=256, method=Image.Quantize.MEDIANCUT,
+        palette = image.quantize(colors=256, method=Image.Quantize.FASTOCTREE,
                                  dither=Image.Dither.NONE)
         buffer = io.BytesIO()
-        palette.save(buffer, format="PNG", optimize=True)
+        palette.save(buffer, format="PNG", compress_level=9)
         return buffer.getvalue()
 
     def nee_colormap(self):
@@ -296,9 +297,13 @@ def period_masks(written: Written) -> dict:
             mask = (index >= start) & (index < end_exclusive)
             bounds = (start, end_exclusive)
         else:
-            mask = np.asarray(index.year == int(label))
-            bounds = (pd.Timestamp(year=int(label), month=1, day=1),
-                      pd.Timestamp(year=int(label) + 1, month=1, day=1))
+            try:
+                year = int(label)
+            except (TypeError, ValueError):
+                continue  # neither a calendar year nor a written period: nothing to cut
+            mask = np.asarray(index.year == year)
+            bounds = (pd.Timestamp(year=year, month=1, day=1),
+                      pd.Timestamp(year=year + 1, month=1, day=1))
         mask = np.asarray(mask, dtype=bool)
         if not mask.any():
             continue
@@ -327,10 +332,12 @@ def fill_category(values) -> np.ndarray:
     return np.array([known.get(str(v).lower(), str(v)) for v in text], dtype=object)
 
 
+_PERIOD_COLOURS = (_BLUE, _VERMILLION, _GREEN, _BLACK, _PURPLE, _ORANGE, _SKY)
+
+
 def _year_colours(drawing, labels):
-    colormap = drawing.mpl.colormaps["cividis"]
-    positions = np.linspace(0.0, 0.8, len(labels)) if len(labels) > 1 else [0.0]
-    return {label: colormap(p) for label, p in zip(labels, positions, strict=True)}
+    """One strong Okabe & Ito colour per period (cycled), never a pale one."""
+    return {label: _PERIOD_COLOURS[i % len(_PERIOD_COLOURS)] for i, label in enumerate(labels)}
 
 
 def _span_text(written: Written) -> str:
@@ -473,8 +480,9 @@ def figure_cumulative(drawing, written, interval) -> Figure:
             axis.fill_between(times, low, high, color=colour, alpha=alpha, hatch=hatch,
                               linewidth=0.0, label=f"{label}: {text}")
             kinds.add(kind)
+        partial = " (partial period)" if periods[label][4] else ""
         axis.plot(times, cumulative, color=colour, linewidth=1.8,
-                  label=f"{label}: gap-filled NEE")
+                  label=f"{label}: gap-filled NEE{partial}")
     axis.axhline(0.0, color="#555555", linewidth=0.8)
     drawing.date_axis(axis, ticks=13)
     axis.set_ylabel(f"Cumulative NEE [{_CARBON_UNIT}]")
@@ -643,16 +651,50 @@ def clock_result(manifest: dict):
     return shift, verdict
 
 
+_CLOCK_WORDS = {
+    "consistent": "Rg follows the sun the site settings predict",
+    "shifted": "Rg is SHIFTED against the sun (clock or UTC offset)",
+    "daylight_saving": "stamps look like DAYLIGHT-SAVING time in part of the year",
+    "hemisphere": "the latitude's SIGN looks wrong",
+    "cannot_judge": "the check could not judge this record",
+}
+
+
 def clock_sentence(manifest: dict) -> str:
+    """The clock check of the run in one plain sentence (no check: says so)."""
     shift, verdict = clock_result(manifest)
     if shift is None and verdict is None:
         return "no clock check in this result folder"
-    parts = []
+    clock = manifest.get("provenance", {}).get("clock")
+    clock = clock if isinstance(clock, dict) else {}
+    parts = [_CLOCK_WORDS.get(verdict, verdict)] if verdict else []
     if shift is not None:
-        parts.append(f"estimated shift {shift:+.0f} min")
-    if verdict:
-        parts.append(verdict)
+        spread = clock.get("spread_minutes")
+        months = clock.get("months_used")
+        parts.append(f"estimated shift {shift:+.0f} min"
+                     + (f" ± {float(spread):.0f}" if isinstance(spread, (int, float)) else "")
+                     + (f" over {int(months)} months" if isinstance(months, int) else ""))
+    problems = clock.get("problems") or []
+    if problems:
+        parts.append(str(problems[0]))
     return "; ".join(parts)
+
+
+def _centre_offset_minutes(measured: pd.Series, potential: pd.Series):
+    """Radiation-weighted mean time of day of measured minus potential radiation [min].
+
+    A descriptive check of the diurnal composites drawn (not the run's clock
+    estimate): clouds that favour one half of the day move it by some minutes,
+    a clock error moves it by the error in every month.
+    """
+    centres = []
+    for course in (measured, potential):
+        weight = np.clip(course.to_numpy(dtype=float), 0.0, None)
+        weight = np.where(np.isfinite(weight), weight, 0.0)
+        if weight.sum() <= 0.0:
+            return None
+        centres.append(float(np.sum(course.index.to_numpy() * weight) / weight.sum()))
+    return round(60.0 * (centres[0] - centres[1])) + 0.0  # + 0.0: no "-0"
 
 
 def figure_clock(drawing, written, interval) -> Figure:
@@ -678,6 +720,11 @@ def figure_clock(drawing, written, interval) -> Figure:
             reference = pd.Series(potential[rows]).groupby(hour[rows]).mean()
             axis.plot(reference.index, reference.to_numpy(), color=_BLACK, linestyle="--",
                       linewidth=1.1, label="potential radiation")
+            offset = _centre_offset_minutes(measured, reference)
+            if offset is not None:
+                axis.text(0.02, 0.95, f"{offset:+.0f} min", transform=axis.transAxes,
+                          ha="left", va="top", fontsize=8,
+                          color=_VERMILLION if abs(offset) >= 30 else "#333333")
         axis.axvline(12.0, color="#999999", linewidth=0.6)
         axis.set_title(_MONTHS[number - 1], loc="left", fontsize=8.5)
         axis.set_xticks([0, 6, 12, 18, 24])
@@ -694,8 +741,10 @@ def figure_clock(drawing, written, interval) -> Figure:
     figure.suptitle(f"Clock check: {sentence}", x=0.06, ha="left", fontsize=10.5)
     missing = "" if has_potential else " (no potential radiation column: measured Rg only)"
     caption = ("Measured Rg should rise and fall with the dashed potential radiation in every "
-               "month; a curve shifted sideways by the same amount each month points to a "
-               f"clock or time-zone error (run's estimate: {sentence}){missing}.")
+               "month; a curve shifted sideways by the same amount each month (the minutes in "
+               "each panel: radiation-weighted centre of measured minus potential, red from "
+               f"30 min) points to a clock or time-zone error (run's estimate: {sentence})"
+               f"{missing}.")
     return Figure("clock_check.png", drawing.png(figure), "Clock check: measured against "
                   "potential radiation", caption)
 
@@ -735,45 +784,51 @@ def figure_monthly(drawing, written) -> Figure:
                   caption)
 
 
+def _monthly_composite(series, column, hour, month, months):
+    """Mean diurnal course per month laid side by side: (x, y) with NaN between months.
+
+    x is the month's position (0, 1, ...) plus the hour of day / 24.
+    """
+    values = series[column].to_numpy(dtype=float)
+    xs, ys = [], []
+    for position, number in enumerate(months):
+        rows = month == number
+        means = pd.Series(values[rows]).groupby(hour[rows]).mean()
+        xs += [position + means.index.to_numpy() / 24.0, [np.nan]]
+        ys += [means.to_numpy(), [np.nan]]
+    return np.concatenate(xs), np.concatenate(ys)
+
+
 def figure_diurnal(drawing, written, interval) -> Figure:
     series = written.timeseries
     hour = _hour_of_day(series.index, interval)
     month = series.index.month.to_numpy()
     months = [m for m in range(1, 13) if (month == m).any()]
-    ncols = 6 if len(months) > 4 else len(months)
-    nrows = -(-len(months) // ncols)
-    height = 1.1 + 2.0 * nrows
-    figure = drawing.figure(11.0, height, left=0.06, right=0.99, top=1 - 0.45 / height,
-                            bottom=0.95 / height, hspace=0.35, wspace=0.08)
-    axes = _panels(figure, len(months), ncols, sharex=True, sharey=True)
+    figure = drawing.figure(11.0, 4.2, left=0.07, right=0.99, top=0.9, bottom=0.2)
+    axis = figure.subplots()
     lines = [("nee_filled", "NEE (gap-filled)", _BLACK, "-"),
-             ("gpp_nighttime", "GPP, nighttime", _GREEN, "-"),
-             ("gpp_daytime", "GPP, daytime", _BLUE, "--"),
-             ("reco_nighttime", "Reco, nighttime", _VERMILLION, "-"),
-             ("reco_daytime", "Reco, daytime", _ORANGE, "--")]
-    lines = [line for line in lines if line[0] in series.columns]
-    for axis, number in zip(axes, months, strict=True):
-        rows = month == number
-        for column, label, colour, style in lines:
-            means = pd.Series(series[column].to_numpy(dtype=float)[rows]).groupby(
-                hour[rows]).mean()
-            axis.plot(means.index, means.to_numpy(), color=colour, linestyle=style,
-                      linewidth=1.3, label=label)
-        axis.axhline(0.0, color="#888888", linewidth=0.6)
-        axis.set_title(_MONTHS[number - 1], loc="left", fontsize=8.5)
-        axis.set_xticks([0, 6, 12, 18, 24])
-        axis.tick_params(labelsize=7.5)
-    axes[0].set_xlim(0, 24)
-    for position, axis in enumerate(axes):
-        if position % ncols == 0:
-            axis.set_ylabel(f"[{_FLUX_UNIT}]", fontsize=8)
-        if position >= len(axes) - ncols:
-            axis.set_xlabel("Time of day [h]", fontsize=8)
-    handles, labels = axes[0].get_legend_handles_labels()
-    figure.legend(handles, labels, loc="lower center", ncols=len(lines), fontsize=8)
-    caption = ("Mean diurnal course per month (all years pooled, local standard time): look "
-               "for daytime GPP of the two methods that differ in shape, and for night NEE "
-               "that does not match the Reco curves.")
+             ("gpp_nighttime", "GPP, nighttime method", _GREEN, "-"),
+             ("gpp_daytime", "GPP, daytime method", _BLUE, "--"),
+             ("reco_nighttime", "Reco, nighttime method", _VERMILLION, "-"),
+             ("reco_daytime", "Reco, daytime method", _ORANGE, "--")]
+    for column, label, colour, style in lines:
+        if column in series.columns:
+            x, y = _monthly_composite(series, column, hour, month, months)
+            axis.plot(x, y, color=colour, linestyle=style, linewidth=1.2, label=label)
+    for position in range(1, len(months)):
+        axis.axvline(position, color="#888888", linewidth=0.8)
+    axis.axhline(0.0, color="#888888", linewidth=0.6)
+    axis.set_xlim(0, len(months))
+    axis.set_xticks(np.arange(len(months)) + 0.5, [_MONTHS[m - 1][:3] for m in months])
+    axis.tick_params(axis="x", length=0)
+    axis.grid(False, axis="x")
+    axis.set_ylabel(f"[{_FLUX_UNIT}]")
+    axis.set_title("Mean diurnal course per month, 0–24 h local standard time within each "
+                   "month", loc="left")
+    axis.legend(loc="upper center", bbox_to_anchor=(0.5, -0.1), ncols=5)
+    caption = ("Within each month (0–24 h, all years pooled) the daytime GPP of the two "
+               "methods should have the same shape, and night NEE should sit on the Reco "
+               "curves; a month where they part is where the partitioning is least certain.")
     return Figure("diurnal_by_month.png", drawing.png(figure), "Mean diurnal course per month",
                   caption)
 
@@ -966,6 +1021,7 @@ def window_status(parameters: pd.DataFrame) -> pd.DataFrame:
         state = head[0].fillna("").str.lower()
         why = head[1].fillna("")
         why = why.where(why != "", reason)
+        why = why.where(why.str.lower() != "ok", "")
     else:
         accepted = (parameters["accepted"].astype(bool) if "accepted" in parameters.columns
                     else pd.Series(True, index=parameters.index))
@@ -1083,6 +1139,7 @@ def figure_light_response(drawing, written) -> Figure:
         end = pd.Timestamp(window["window_end"]) - pd.Timedelta(minutes=1)
         state, why = states.loc[position, "state"], states.loc[position, "why"]
         flagged = state != "accepted"
+        why = textwrap.shorten(str(why), width=48, placeholder=" …")
         axis.set_title(f"{start:%d %b} – {end:%d %b %Y}: {state}" + (f" ({why})" if why else ""),
                        loc="left", color=_VERMILLION if flagged else _BLACK, fontsize=8.5)
         if flagged:

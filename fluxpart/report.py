@@ -125,6 +125,8 @@ def read_written(directory) -> Written:
     """
     directory = Path(directory)
     manifest, tables = read_folder(directory)
+    for table in tables.values():
+        table.attrs = {}  # units are read from the field metadata; attrs slow every copy
     for name in ("timeseries", "annual"):
         if name not in tables:
             raise InputFileError(f"the manifest of {str(directory)!r} lists no {name!r} table; "
@@ -268,8 +270,6 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                          f"{_number(row['ustar_threshold'], 3, 'ustar_threshold', label, 'm s-1')}"
                          f"{_ustar_range(written, label)}; night records below it were "
                          "removed before gap filling.</li>")
-        facts.append(f"<li><strong>Clock check:</strong> "
-                     f"{_e(clock_sentence(written.manifest))}.</li>")
         if "methods_agree" in row.index and pd.notna(row["methods_agree"]):
             agree = bool(row["methods_agree"])
             margin = written.setting("agreement_margin")
@@ -287,7 +287,11 @@ def _summary_card(written: Written) -> tuple[str, bool]:
         cards.append(f'<div class="card" data-period="{_e(label)}"><h3>'
                      f"{_period_heading(label, first, last, partial)}</h3>{headline}"
                      f"{flux_table}<ul>{''.join(facts)}</ul></div>")
-    return "".join(cards), combined_used
+    index = written.timeseries.index
+    record = (f'<p class="record-line">Record {index[0]:%d %b %Y} – {index[-1]:%d %b %Y}, '
+              f"{interval_minutes(index)}-minute records. <strong>Clock check:</strong> "
+              f"{_e(clock_sentence(written.manifest))}.</p>")
+    return record + "".join(cards), combined_used
 
 
 def _reading_notes(combined_used: bool) -> str:
@@ -550,6 +554,7 @@ code { font-family: "DejaVu Sans Mono", Consolas, monospace; font-size: 0.95em; 
 .card { border: 1px solid #2c4a7a; border-left: 6px solid #2c4a7a; background: #f5f8fc;
         padding: 0.3em 1em 0.6em; margin: 0.8em 0; break-inside: avoid; }
 .headline { font-size: 1.12em; margin: 0.4em 0; }
+.record-line { margin: 0.5em 0; }
 .card ul { margin: 0.3em 0; padding-left: 1.2em; }
 .card table { background: #ffffff; }
 .small { font-size: 0.85em; color: #333333; }
