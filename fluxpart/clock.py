@@ -89,6 +89,17 @@ MIN_DIURNAL_RANGE = 20.0
 #: light, which a tilted or partly shaded sensor still sees from the whole sky,
 #: dominates; high enough to stay clear of the night offset of the sensor.
 EDGE_LEVEL = 0.15
+#: Smallest standard deviation across the record's months of log(P / Q), the
+#: potential radiation at the configured over the flipped latitude, for the
+#: hemisphere to be judged [1]; 0.12, our choice: reached from about 8° of latitude
+#: with a year of data; below it a season of clouds can mimic the flip.
+MIN_HEMISPHERE_CONTRAST = 0.12
+#: Smallest seasonal swing (standard deviation across months) of the day-length
+#: mismatch between the Rg envelope and the potential radiation for a latitude to be
+#: called flipped [min]; 20 min, our choice: day length at the right latitude
+#: matches within minutes, while a flipped latitude's differs by its seasonal range
+#: (about 1.6 h at 12°, FAO-56 eq. 34).
+MIN_DAYLENGTH_SWING = 20.0
 _DAYLIGHT_SAVING_STEP = 60.0      # minutes: the daylight-saving change of the clock
 
 
@@ -182,15 +193,15 @@ def _correlation(envelope: np.ndarray, model: np.ndarray) -> float:
     return float((a * b).sum() / scale) if scale > 0 else np.nan
 
 
-def _crossing_midpoint(curve: np.ndarray, interval_minutes: float, level: float) -> float:
-    """Minute of the day halfway between the rising and the falling crossing of a level.
+def _crossings(curve: np.ndarray, interval_minutes: float, level: float) -> tuple:
+    """Midpoint [minute of the day] and width [min] between a level's rising and falling crossing.
 
     `level` is a share of the curve's range above its minimum. NaN where the curve
     does not cross it on both sides of its peak within the day.
     """
     slots = len(curve)
-    if not np.isfinite(curve).all():
-        return np.nan
+    if not np.isfinite(curve).all() or np.ptp(curve) <= 0:
+        return np.nan, np.nan
     peak = int(np.argmax(curve))
     rolled = np.roll(curve, slots // 2 - peak)             # peak in the middle
     low, high = rolled.min(), rolled.max()
@@ -200,13 +211,13 @@ def _crossing_midpoint(curve: np.ndarray, interval_minutes: float, level: float)
     left = np.flatnonzero(below[:centre])
     right = np.flatnonzero(below[centre:])
     if left.size == 0 or right.size == 0:
-        return np.nan
+        return np.nan, np.nan
     i = left[-1]                                           # last below before the peak
     j = centre + right[0]                                  # first below after the peak
     rise = i + (threshold - rolled[i]) / (rolled[i + 1] - rolled[i])
     fall = j - 1 + (rolled[j - 1] - threshold) / (rolled[j - 1] - rolled[j])
     middle = 0.5 * (rise + fall) - (slots // 2 - peak)     # in slots, unrolled
-    return float(middle * interval_minutes)
+    return float(middle * interval_minutes), float((fall - rise) * interval_minutes)
 
 
 def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes) -> pd.DataFrame:
@@ -257,13 +268,17 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
         index - pd.Timedelta(minutes=float(lag)), *position, interval), interval)[0]
         for lag in fine_lags if lag != 0.0}
     fine[0.0] = potential_matrix
+    flipped_matrix, _ = _day_slot_matrix(index, potential_radiation(
+        index, -latitude, longitude, utc_offset, interval), interval)
 
     rows = []
     for month in months.unique():
         in_month = (months == month) & good_day
         row = {"month_start": month.start_time, "month": month.month,
                "days": int(in_month.sum()), "shift_minutes": np.nan, "correlation": np.nan,
-               "edge_shift_minutes": np.nan, "rg_daily": np.nan, "potential_daily": np.nan,
+               "edge_shift_minutes": np.nan, "daylength_rg": np.nan,
+               "daylength_potential": np.nan, "daylength_flipped": np.nan,
+               "rg_daily": np.nan, "potential_daily": np.nan,
                "used": False, "reason": ""}
         rows.append(row)
         if row["days"] < MIN_DAYS_PER_WINDOW:
@@ -301,9 +316,14 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
                 lag += step * 0.5 * (left - right) / curvature
         lag = (lag + 720.0) % 1440.0 - 720.0
         row["shift_minutes"] = float(lag)
-        edge = (_crossing_midpoint(envelope, interval, EDGE_LEVEL)
-                - _crossing_midpoint(composite[0.0], interval, EDGE_LEVEL))
-        row["edge_shift_minutes"] = float((edge + 720.0) % 1440.0 - 720.0)
+        (rg_middle, rg_width), (sun_middle, sun_width) = (
+            _crossings(envelope, interval, EDGE_LEVEL),
+            _crossings(composite[0.0], interval, EDGE_LEVEL))
+        row["edge_shift_minutes"] = float((rg_middle - sun_middle + 720.0) % 1440.0 - 720.0)
+        flipped_composite = np.nanmean(np.where(mask, flipped_matrix[in_month], np.nan), axis=0)
+        row["daylength_rg"] = rg_width
+        row["daylength_potential"] = sun_width
+        row["daylength_flipped"] = _crossings(flipped_composite, interval, EDGE_LEVEL)[1]
         row["correlation"] = float(scores[i])
         if scores[i] < MIN_CORRELATION:
             row["reason"] = (f"Rg envelope matches the sun poorly (r = {scores[i]:.2f} < "
@@ -342,11 +362,16 @@ def check_hemisphere(index, rg, latitude, longitude, utc_offset, interval_minute
     at the flipped latitude Q. Clear-sky transmittance varies little through the
     year, so ``log((E + 5) / (P + 5))`` should be nearly constant. The latitude
     is a mismatch where the standard deviation of that log ratio across months is
-    above 0.25 (±28 %) and more than twice the one with Q, and E correlates
-    better with Q than with P. Judged only with at least three months whose
-    potential radiation differs by 25 % or more between the sunniest and the
-    darkest (the seasonal contrast is too small near the equator). The 5 W m-2
-    offset keeps polar-night months finite. Thresholds: our choice; day length
+    more than 1.5 times the one with Q and the correlation of E with Q exceeds the
+    one with P by 0.8 or more (E follows the other hemisphere's seasons); and,
+    where at least three used months have a sunrise and a sunset, the day length
+    agrees: the width of the Rg envelope at :data:`EDGE_LEVEL` minus that of the
+    potential radiation swings through the year (standard deviation above
+    :data:`MIN_DAYLENGTH_SWING` and twice the one with Q). Clouds change the
+    clear-day Rg; they do not change the day length. Judged
+    only with at least three months and where the two hemispheres differ enough
+    (:data:`MIN_HEMISPHERE_CONTRAST`; not near the equator). The 5 W m-2 offset
+    keeps polar-night months finite. Thresholds: our choice; day length
     and daily extraterrestrial radiation against latitude: Allen et al. (1998),
     FAO-56, eqs. 21 and 34.
 
@@ -367,18 +392,31 @@ def check_hemisphere(index, rg, latitude, longitude, utc_offset, interval_minute
     q = flipped_monthly.reindex(enough.index.to_period("M")).to_numpy()
     e = enough["rg_daily"].to_numpy()
     p = enough["potential_daily"].to_numpy()
-    contrast = (np.nanmax(p) + 5.0) / (np.nanmin(p) + 5.0)
-    contrast_flipped = (np.nanmax(q) + 5.0) / (np.nanmin(q) + 5.0)
-    if max(contrast, contrast_flipped) < 1.25:
-        return "cannot_judge", ("hemisphere not judged: potential radiation varies by less "
-                                "than 25 % between the months of the record")
+    contrast = float(np.nanstd(np.log((p + 5.0) / (q + 5.0))))
+    if contrast < MIN_HEMISPHERE_CONTRAST:
+        return "cannot_judge", ("hemisphere not judged: the months of the record differ too "
+                                "little between the two hemispheres (near the equator, or a "
+                                "short record)")
     if np.nanmax(e) < MIN_DIURNAL_RANGE:
         return "cannot_judge", "hemisphere not judged: measured Rg shows no daylight"
     spread = np.nanstd(np.log((e + 5.0) / (p + 5.0)))
     spread_flipped = np.nanstd(np.log((e + 5.0) / (q + 5.0)))
     r_configured = _correlation(e, p)
     r_flipped = _correlation(e, q)
-    if spread > 0.25 and spread > 2.0 * spread_flipped and r_flipped > r_configured:
+    lengths = months[months["used"]]
+    lengths = lengths[np.isfinite(lengths[["daylength_rg", "daylength_potential",
+                                           "daylength_flipped"]]).all(axis=1)]
+    if len(lengths) >= 3:
+        # day length does not care for clouds: the width of the Rg envelope at a level
+        # minus that of the potential radiation stays nearly constant through the year
+        # at the right latitude and swings with the seasons at the flipped one
+        off = np.std(lengths["daylength_rg"] - lengths["daylength_potential"])
+        off_flipped = np.std(lengths["daylength_rg"] - lengths["daylength_flipped"])
+        days_say_flipped = off > 2.0 * off_flipped and off > MIN_DAYLENGTH_SWING
+    else:
+        days_say_flipped = True          # no sunrise and sunset to time: radiation alone
+    if (spread > 1.5 * spread_flipped and r_flipped - r_configured >= 0.8
+            and days_say_flipped):
         return "mismatch", (
             f"the seasonal cycle of Rg fits latitude {-latitude:g} (r = {r_flipped:.2f}), not "
             f"the configured {latitude:g} (r = {r_configured:.2f}): the latitude likely has "

@@ -78,7 +78,7 @@ def coverage_table(frame: pd.DataFrame, interval_minutes: int) -> pd.DataFrame:
     return table
 
 
-def format_check(site, report, table: pd.DataFrame) -> str:
+def format_check(site, report, table: pd.DataFrame, problems=()) -> str:
     """The plain text printed by ``fluxpart check``.
 
     Parameters
@@ -89,6 +89,8 @@ def format_check(site, report, table: pd.DataFrame) -> str:
         What the reader found.
     table : pandas.DataFrame
         From :func:`coverage_table`.
+    problems : sequence of str, optional
+        Problems found beyond the reader's (clock, preflight), listed after them.
 
     Returns
     -------
@@ -105,9 +107,10 @@ def format_check(site, report, table: pd.DataFrame) -> str:
         _format_table(table),
         "",
     ]
-    if report.warnings:
-        lines.append(f"problems found ({len(report.warnings)})")
-        lines.extend(f"  - {warning}" for warning in report.warnings)
+    listed = [*report.warnings, *problems]
+    if listed:
+        lines.append(f"problems found ({len(listed)})")
+        lines.extend(f"  - {warning}" for warning in listed)
     else:
         lines.append("problems found: none")
     return "\n".join(lines) + "\n"

@@ -32,7 +32,9 @@ from . import (
     agreement,
     audit,
     budget,
+    clock,
     gapfill,
+    preflight,
     schema,
     screening,
     solar,
@@ -52,7 +54,8 @@ from .partition import daytime, nighttime
 from .site import Site
 from .variables import REQUIRED, VARIABLES
 
-__all__ = ["Result", "load", "process", "process_site_config", "screening_summary", "stage_count"]
+__all__ = ["Result", "check_record", "load", "process", "process_site_config",
+           "screening_summary", "stage_count"]
 
 _BUDGET_FLUXES = {"nee_filled": "nee", "gpp_nighttime": "gpp_nighttime",
                   "reco_nighttime": "reco_nighttime", "gpp_daytime": "gpp_daytime",
@@ -338,6 +341,70 @@ def _geometry_and_screening(frame, site, config, interval):
     return geometry, is_night, screens
 
 
+def _clock_and_preflight(frame, site, config, interval, geometry, is_night, screens,
+                         reader=None):
+    """The clock verdict (None when ``clock_check = "off"``) and the preflight findings."""
+    reader = reader or {}
+    verdict = None
+    if config.clock_check != "off":
+        verdict = clock.check_clock(
+            frame.index, frame["rg"].to_numpy(dtype=float), site.latitude, site.longitude,
+            site.utc_offset, interval, time_marks=reader.get("time_marks"),
+            shift_applied_minutes=float(reader.get("shift_minutes") or 0.0))
+    findings = preflight.preflight(
+        frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),
+        screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval)
+    return verdict, findings
+
+
+def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
+                 time_marks: str | None = None, shift_applied_minutes: float = 0.0):
+    """The clock verdict and every preflight finding of a record, as ``check`` lists them.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Canonical record, as for :func:`process`.
+    site : Site
+        The tower's location.
+    config : Config, optional
+        Settings; defaults when omitted.
+    time_marks : str, optional
+        The file's declared stamp convention, for the clock message.
+    shift_applied_minutes : float, optional
+        Minutes the reader subtracted from the file's stamps.
+
+    Returns
+    -------
+    verdict : fluxpart.clock.ClockVerdict or None
+        None where ``clock_check = "off"``.
+    findings : list of fluxpart.preflight.Finding
+        Conditions that make a stage fail (``fatal``) or fall back.
+    """
+    config = Config() if config is None else config
+    frame, _ = _prepare(frame, site)
+    interval = _validate(frame)
+    geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
+    return _clock_and_preflight(frame, site, config, interval, geometry, is_night, screens,
+                                {"time_marks": time_marks,
+                                 "shift_minutes": shift_applied_minutes})
+
+
+def _refuse(verdict, findings, config) -> None:
+    """Stop before any fit on a clock problem (unless allowed) or a fatal finding."""
+    clock_problems = list(verdict.problems) if verdict is not None else []
+    if config.clock_check != "refuse":
+        clock_problems = []
+    fatal = [str(finding) for finding in findings if finding.fatal]
+    if not clock_problems and not fatal:
+        return
+    text = "; ".join(clock_problems + fatal)
+    if clock_problems:
+        raise ConfigError(f"{text} (to process anyway, set [processing] clock_check = "
+                          "\"warn\")")
+    raise InsufficientDataError(f"{text} (fluxpart check lists every problem)")
+
+
 def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = None):
     """Screen a record and estimate its u* threshold, without filling or partitioning.
 
@@ -483,6 +550,14 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
 
     geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     screened = screens.screened
+    verdict, findings = _clock_and_preflight(frame, site, config, interval, geometry, is_night,
+                                             screens, (provenance or {}).get("reader"))
+    _refuse(verdict, findings, config)
+    if verdict is not None:
+        warnings.extend(verdict.problems)
+    warnings.extend(str(f) for f in findings if f.stage not in ("u* threshold", "annual budget"))
+    clock_record = ({"setting": "off", "status": "not_checked"} if verdict is None
+                    else {"setting": config.clock_check, **verdict.to_dict()})
     step("screened")
 
     ustar_table, ustar_draws, central, scenario_thresholds = _ustar_thresholds(
@@ -581,7 +656,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         parameters={name: schema.with_metadata(table, f"parameters_{name}", facts)
                     for name, table in parameters.items()},
         screening_counts=counts, warnings=tuple(warnings),
-        provenance={**(provenance or {}), "screening": screens.thresholds,
+        provenance={**(provenance or {}), "screening": screens.thresholds, "clock": clock_record,
+                    "preflight": [str(f) for f in findings],
                     "uncertainty": {"confidence": uncertainty.CONFIDENCE,
                                     "not_quantified": list(uncertainty.NOT_QUANTIFIED)}})
 
@@ -692,7 +768,6 @@ def process_site_config(path, config: Config | None = None, *, progress=None,
         "site_config": {"path": str(Path(path).resolve()),
                         "sha256": hashlib.sha256(config_bytes).hexdigest(),
                         "text": config_bytes.decode("utf-8", errors="replace")},
-
         "input": site_config.input_record(),
     }
     return process(frame, site_config.site, config, provenance=provenance, progress=progress)

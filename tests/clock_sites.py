@@ -37,7 +37,7 @@ def _clearness(rng, n_days, samples_per_day, mean):
 def synthetic_rg(latitude, longitude, utc_offset, *, year=2021, days=365, interval_minutes=30,
                  seed=0, cloudiness="moderate", tilt_degrees=0.0, tilt_azimuth=90.0,
                  shade_azimuths=None, clock_shift_minutes=0.0, daylight_saving=None,
-                 start_month=1, afternoon_showers=0.0):
+                 start_month=1, afternoon_showers=0.0, wet_summer=0.0):
     """A regular record of measured Rg [W m-2] at interval starts, local standard time.
 
     Parameters
@@ -47,9 +47,13 @@ def synthetic_rg(latitude, longitude, utc_offset, *, year=2021, days=365, interv
         measured over [t - shift, t - shift + interval). Positive = Rg appears later.
     daylight_saving : tuple of (month, month), optional
         Stamps in civil time with daylight saving (one hour later) from the first day
-        of the first month to the first day of the second month.
+        of the first month to the first day of the second month (across the new year
+        where the first is later, as in the southern hemisphere).
     tilt_degrees, tilt_azimuth : float
         A sensor tilted toward this azimuth (degrees east of north).
+    wet_summer : float
+        Clearness lowered by this share in the local summer (a monsoon: clouds that
+        follow the sun's season, so the clear-day Rg no longer follows it).
     afternoon_showers : float
         Share of days whose afternoons (13-19 h) are darkened by convective cloud.
     shade_azimuths : tuple of (low, high), optional
@@ -81,6 +85,8 @@ def synthetic_rg(latitude, longitude, utc_offset, *, year=2021, days=365, interv
     samples_per_day = 1440 // fine_minutes
     n_days = len(local) // samples_per_day
     clearness = _clearness(rng, n_days, samples_per_day, CLOUDINESS[cloudiness])
+    summer_month = local.month.isin([5, 6, 7, 8, 9] if latitude >= 0 else [11, 12, 1, 2, 3])
+    clearness = clearness * np.where(summer_month, 1.0 - wet_summer, 1.0)
     hour = (local.hour + local.minute / 60.0).to_numpy()
     showers = np.repeat(rng.random(n_days) < afternoon_showers, samples_per_day)
     clearness = np.where(showers & (hour >= 13) & (hour < 19), 0.4 * clearness, clearness)
@@ -95,7 +101,8 @@ def synthetic_rg(latitude, longitude, utc_offset, *, year=2021, days=365, interv
     if daylight_saving is not None:
         first, last = daylight_saving
         stamps = rg.index
-        summer = (stamps >= pd.Timestamp(year, first, 1)) & (stamps < pd.Timestamp(year, last, 1))
+        after, before = stamps.month >= first, stamps.month < last
+        summer = (after & before) if first < last else (after | before)   # southern: Oct-Apr
         hour = 60 // interval_minutes
         rg = rg.where(~summer, rg.shift(hour))
     rg = rg[(rg.index >= start) & (rg.index < start + pd.Timedelta(days=days))]

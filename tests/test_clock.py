@@ -1,0 +1,190 @@
+"""Tests of fluxpart.clock: the clock and site-geometry check (issue 12).
+
+Known-truth records come from tests/clock_sites.py: the sun and the clear-sky Rg from
+pvlib (0.16.1 when written; ``pvlib.solarposition.get_solarposition``, NREL SPA, and
+``pvlib.clearsky.haurwitz``), independent of fluxpart.solar, with invented clouds and a
+known clock error. A check that agreed with itself only would pass on its own mistakes;
+here the truth is set by the reference library.
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+from clock_sites import synthetic_rg
+
+from fluxpart.clock import (
+    ClockVerdict,
+    check_clock,
+    check_hemisphere,
+    monthly_shifts,
+    shift_threshold_minutes,
+)
+
+
+def _check(rg, latitude, longitude, utc_offset, interval, **kwargs):
+    return check_clock(rg.index, rg.to_numpy(), latitude, longitude, utc_offset, interval,
+                       **kwargs)
+
+
+# Correct sites from 78° S to 78° N, both record lengths, clear to cloudy, a tilted
+# and a partly shaded sensor: the check must not call any of them a clock problem.
+CORRECT = [
+    # (latitude, longitude, utc_offset, interval, cloudiness, extra)
+    (-78.0, 166.7, 12.0, 30, "moderate", {}),          # polar night and midnight sun
+    (-35.3, 149.1, 10.0, 60, "cloudy", {}),
+    (5.0, -52.0, -3.0, 30, "cloudy", {"afternoon_showers": 0.4}),
+    (49.3, 10.2, 1.0, 30, "moderate", {"tilt_degrees": 3.0, "tilt_azimuth": 270.0}),
+    (62.0, 25.0, 2.0, 60, "cloudy", {"shade_azimuths": (60.0, 120.0)}),
+    (78.0, 15.6, 1.0, 60, "cloudy", {}),               # polar night and midnight sun
+]
+
+
+@pytest.mark.parametrize("latitude, longitude, utc_offset, interval, cloudiness, extra", CORRECT)
+def test_correct_sites_raise_nothing(latitude, longitude, utc_offset, interval, cloudiness,
+                                     extra):
+    """No clock or hemisphere problem on correct sites; the estimate is near zero."""
+    rg = synthetic_rg(latitude, longitude, utc_offset, interval_minutes=interval,
+                      cloudiness=cloudiness, seed=int(abs(latitude)), **extra)
+    verdict = _check(rg, latitude, longitude, utc_offset, interval)
+    assert verdict.problems == ()
+    assert verdict.status in ("consistent", "cannot_judge")
+    assert verdict.hemisphere != "mismatch"
+    # the sun of pvlib's SPA and fluxpart.solar agree within 0.05 deg (test_solar), so a
+    # correct site's median shift is a few minutes; a tilt or shade moves the apparent
+    # noon further (up to about half the threshold here), which must stay below it
+    assert abs(verdict.shift_minutes) < shift_threshold_minutes(interval)
+    if not extra:
+        assert abs(verdict.shift_minutes) < 8.0
+
+
+# A clock or stamp error of one record or more: caught, measured within 8 min (a quarter
+# of a half-hour record: the refinement is to a sixth of a record, plus cloud noise).
+SHIFTED = [
+    (-35.3, 149.1, 10.0, 30, 30.0),
+    (50.0, 8.0, 1.0, 30, -30.0),
+    (65.0, 25.0, 2.0, 60, 60.0),
+    (-78.0, 166.7, 12.0, 60, -60.0),
+    (20.0, -100.0, -6.0, 30, 120.0),
+]
+
+
+@pytest.mark.parametrize("latitude, longitude, utc_offset, interval, shift", SHIFTED)
+def test_shift_of_one_record_or_more_is_caught(latitude, longitude, utc_offset, interval, shift):
+    """A logger clock off by one record or more is a problem naming the fix."""
+    rg = synthetic_rg(latitude, longitude, utc_offset, interval_minutes=interval,
+                      cloudiness="moderate", clock_shift_minutes=shift, seed=7)
+    verdict = _check(rg, latitude, longitude, utc_offset, interval)
+    assert verdict.status == "shifted"
+    assert abs(verdict.shift_minutes - shift) < 8.0
+    assert len(verdict.problems) == 1 and "clock:" in verdict.problems[0]
+    if shift % 60 == 0:
+        # stamps `shift` minutes late are in a zone shift/60 h east of the configured one
+        assert verdict.suggested_utc_offset == utc_offset + shift / 60
+        assert f"utc_offset = {utc_offset + shift / 60:g}" in verdict.problems[0]
+
+
+def test_file_in_local_time_declared_utc_names_the_offset():
+    """Issue 12's first case: stamps in UTC+10 read as UTC: 600 min, utc_offset = 10."""
+    rg = synthetic_rg(-35.3, 149.1, 10.0, interval_minutes=30, seed=2)
+    verdict = _check(rg, -35.3, 149.1, 0.0, 30)
+    assert verdict.status == "shifted"
+    assert abs(verdict.shift_minutes - 600.0) < 8.0
+    assert verdict.suggested_utc_offset == 10.0
+
+
+def test_end_stamps_read_as_start_name_time_marks():
+    """Stamps that mark interval ends read as starts: one record late; time_marks is named."""
+    # the reader's convention (fluxpart.io): "end" stamps are shifted back one interval
+    rg = synthetic_rg(49.3, 10.2, 1.0, interval_minutes=30, clock_shift_minutes=30.0, seed=4)
+    verdict = _check(rg, 49.3, 10.2, 1.0, 30, time_marks="start", shift_applied_minutes=0.0)
+    assert verdict.status == "shifted"
+    assert 'time_marks = "end"' in verdict.problems[0]
+
+
+def test_longitude_of_the_wrong_sign_is_named():
+    """The sun crosses the meridian 4 min later per degree west (360° in 24 h): a site at
+    10.2° E configured at 10.2° W expects noon 81.6 min late, so Rg comes 81.6 min early;
+    the message names the longitude."""
+    rg = synthetic_rg(49.3, 10.2, 1.0, interval_minutes=30, seed=5)
+    verdict = _check(rg, 49.3, -10.2, 1.0, 30)
+    assert verdict.status == "shifted"
+    assert abs(verdict.shift_minutes + 8 * 10.2) < 8.0
+    assert "[site] longitude = 10.2" in verdict.problems[0]
+
+
+@pytest.mark.parametrize("latitude, longitude, utc_offset, months, interval", [
+    (50.0, 8.0, 1.0, (4, 11), 30),       # northern daylight saving, April to October
+    (-35.3, 149.1, 10.0, (10, 4), 60),   # southern, October to March
+])
+def test_daylight_saving_stamps_are_named(latitude, longitude, utc_offset, months, interval):
+    """Civil time with daylight saving (one hour ahead in summer, a fact of civil time):
+    named as such, with [input] time_zone, and the standard-time shift near zero."""
+    rg = synthetic_rg(latitude, longitude, utc_offset, interval_minutes=interval,
+                      daylight_saving=months, seed=6)
+    verdict = _check(rg, latitude, longitude, utc_offset, interval)
+    assert verdict.status == "daylight_saving"
+    assert "time_zone" in verdict.problems[0] and "daylight-saving" in verdict.problems[0]
+    assert abs(verdict.shift_minutes) < 8.0
+
+
+@pytest.mark.parametrize("latitude, utc_offset, longitude", [(35.3, 10.0, 149.1),
+                                                             (-20.0, -4.0, -60.0),
+                                                             (78.0, 1.0, 15.6)])
+def test_latitude_of_the_wrong_sign_is_caught(latitude, utc_offset, longitude):
+    """Daily extraterrestrial radiation peaks in the local summer (FAO-56 eq. 21): Rg of
+    the other hemisphere than the configured latitude's is a geometry problem."""
+    rg = synthetic_rg(latitude, longitude, utc_offset, interval_minutes=30, seed=8)
+    verdict = _check(rg, -latitude, longitude, utc_offset, 30)
+    assert verdict.hemisphere == "mismatch"
+    assert any(f"latitude = {latitude:g}" in p for p in verdict.problems)
+
+
+def test_polar_night_months_are_not_judged_but_named():
+    """At 78° N the sun stays below the horizon from about November to mid-February
+    (day length, FAO-56 eq. 34); those months are named and left out, the rest judged."""
+    rg = synthetic_rg(78.0, 15.6, 1.0, interval_minutes=30, seed=9)
+    months = monthly_shifts(rg.index, rg.to_numpy(), 78.0, 15.6, 1.0, 30)
+    assert months.loc["2021-12-01", "reason"].startswith("no daylight")
+    assert not months.loc["2021-12-01", "used"]
+    assert months.loc["2021-06-01", "used"]           # midnight sun: judged all the same
+    assert months["used"].sum() >= 6
+
+
+def test_too_short_a_record_cannot_be_judged():
+    """Five days: the check says it cannot judge, and why; no problem is invented."""
+    rg = synthetic_rg(49.3, 10.2, 1.0, interval_minutes=30, days=5, seed=10,
+                      clock_shift_minutes=60.0)
+    verdict = _check(rg, 49.3, 10.2, 1.0, 30)
+    assert verdict.status == "cannot_judge" and verdict.problems == ()
+    assert np.isnan(verdict.shift_minutes)
+    assert any("clock not judged" in note for note in verdict.notes)
+    assert verdict.to_dict()["shift_minutes"] is None
+
+
+def test_rg_without_daylight_cannot_be_judged():
+    """Rg = 0 all year: no diurnal cycle, nothing to judge; the months say so."""
+    index = pd.date_range("2021-01-01", periods=17520, freq="30min")
+    verdict = check_clock(index, np.zeros(len(index)), 78.0, 15.6, 1.0, 30)
+    assert verdict.status == "cannot_judge"
+    assert verdict.months["reason"].str.contains("no diurnal cycle").any()
+    assert check_hemisphere(index, np.zeros(len(index)), 78.0, 15.6, 1.0, 30)[0] == \
+        "cannot_judge"
+
+
+def test_threshold_is_below_one_record():
+    """One record (30 or 60 min) is always above the threshold, with margin."""
+    assert shift_threshold_minutes(30) == 20.0
+    assert shift_threshold_minutes(60) == 40.0
+
+
+def test_verdict_is_json_ready_and_input_untouched():
+    """to_dict gives plain values (for the manifest); the Rg array is not modified."""
+    rg = synthetic_rg(-35.3, 149.1, 10.0, interval_minutes=60, days=90, seed=11)
+    values = rg.to_numpy().copy()
+    verdict = _check(rg, -35.3, 149.1, 10.0, 60)
+    assert isinstance(verdict, ClockVerdict)
+    np.testing.assert_array_equal(rg.to_numpy(), values)
+    record = verdict.to_dict()
+    assert set(record) >= {"status", "shift_minutes", "spread_minutes", "months_used",
+                           "hemisphere", "problems", "notes"}
+    assert isinstance(record["shift_minutes"], float)

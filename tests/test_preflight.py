@@ -1,0 +1,130 @@
+"""Tests of fluxpart.preflight and of process() stopping before any fit (issue 12).
+
+The conditions rest on facts of the trade: Lloyd–Taylor E0 needs night NEE over a
+temperature range (Reichstein et al. 2005 use 15-day windows and a 5 K range); the
+light response needs daytime NEE under sunlight (Lasslop et al. 2010); the moving
+point u* test splits a season's night records into 6 x 20 classes (Reichstein et al.
+2005 (m)). Records are invented (the demo generator, or its frame made degenerate).
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart import demo
+from fluxpart.config import Config
+from fluxpart.errors import ConfigError, InsufficientDataError
+from fluxpart.pipeline import check_record, process
+from fluxpart.site import Site
+
+
+@pytest.fixture(scope="module")
+def demo_frame():
+    """The demo site-year (30-minute records, correct clock)."""
+    frame, _ = demo.site_year(seed=1)
+    return frame
+
+
+def _stages(findings, fatal=None):
+    return {f.stage for f in findings if fatal is None or f.fatal == fatal}
+
+
+def test_demo_site_year_has_no_finding(demo_frame):
+    """A complete, correct site-year: nothing for any stage; the clock is consistent."""
+    verdict, findings = check_record(demo_frame, demo.site())
+    assert findings == []
+    assert verdict.status == "consistent" and verdict.problems == ()
+
+
+def test_one_day_of_data_stops_before_e0(demo_frame):
+    """One day: no 15-day E0 window with 6 records over 5 K; a partial 'year'."""
+    frame = demo_frame.iloc[:48]
+    verdict, findings = check_record(frame, demo.site())
+    assert "nighttime partitioning (E0)" in _stages(findings, fatal=True)
+    assert "annual budget" in _stages(findings, fatal=False)
+    assert verdict.status == "cannot_judge"
+    with pytest.raises(InsufficientDataError, match=r"nighttime partitioning \(E0\)"):
+        process(frame, demo.site())
+
+
+def test_e0_fallback_turns_the_e0_finding_into_a_fallback(demo_frame):
+    """With e0_fallback set, the E0 condition is listed but does not stop the run."""
+    frame = demo_frame.iloc[:48]
+    _, findings = check_record(frame, demo.site(), Config(e0_fallback=150.0))
+    e0 = [f for f in findings if f.stage == "nighttime partitioning (E0)"]
+    assert e0 and not e0[0].fatal and "150 K" in e0[0].message
+
+
+def test_constant_nee_is_named_with_its_stage(demo_frame):
+    """A stuck NEE series stops the run, naming the variable and the stage."""
+    frame = demo_frame.assign(nee=np.where(demo_frame["nee"].notna(), 2.0, np.nan))
+    _, findings = check_record(frame, demo.site())
+    constant = [f for f in findings if "nee is constant" in f.message]
+    assert constant and constant[0].fatal
+    assert constant[0].stage == "gap filling and both partitionings"
+    with pytest.raises(InsufficientDataError, match="nee is constant"):
+        process(frame, demo.site())
+
+
+def test_rg_zero_all_year_at_78_north_names_the_daylight():
+    """Rg = 0 all year at 78° N: Rg constant and no daylight for the light response."""
+    frame, _ = demo.site_year(seed=2)
+    frame = frame.assign(rg=np.where(frame["rg"].notna(), 0.0, np.nan))
+    site = Site("Arctic test site (fictional)", 78.0, 15.6, 1.0)
+    verdict, findings = check_record(frame, site)
+    fatal = _stages(findings, fatal=True)
+    assert "night mask and daytime light response" in fatal
+    assert "daytime partitioning (light response)" in fatal
+    assert verdict.status == "cannot_judge"
+    with pytest.raises(InsufficientDataError, match="no daylight for the light response"):
+        process(frame, site)
+
+
+def test_too_few_night_records_for_ustar_detection_is_a_fallback(demo_frame):
+    """Two weeks hold far fewer than the 6 x 20 x 3 night records per season the moving
+    point test needs: a fall-back to the fixed threshold, not a stop; 'fixed' needs none."""
+    frame = demo_frame.iloc[:48 * 14]
+    _, findings = check_record(frame, demo.site())
+    ustar = [f for f in findings if f.stage == "u* threshold"]
+    assert ustar and not ustar[0].fatal and "360" in ustar[0].message
+    _, findings = check_record(frame, demo.site(), Config(ustar_method="fixed"))
+    assert "u* threshold" not in _stages(findings)
+
+
+def test_rg_above_potential_is_reported_as_clock_evidence(demo_frame):
+    """A site configured one hour off: the Rg-above-potential screen's rejections are
+    reported (in the morning or evening), not silently refilled."""
+    site = demo.site()
+    wrong = Site(site.name, site.latitude, site.longitude, site.utc_offset + 1.0)
+    verdict, findings = check_record(demo_frame, wrong)
+    screen = [f for f in findings if f.stage.startswith("screening")]
+    assert screen and "clock" in screen[0].message
+    assert verdict.status == "shifted"
+
+
+def test_process_refuses_a_shifted_clock_unless_told_to_warn(demo_frame):
+    """clock_check = "refuse" (default) stops with the fix; "warn" runs and records the
+    shift in the provenance; "off" records that it was not checked."""
+    site = demo.site()
+    wrong = Site(site.name, site.latitude, site.longitude, site.utc_offset - 1.0)
+    with pytest.raises(ConfigError, match=r"utc_offset = 1.*clock_check = \"warn\""):
+        process(demo_frame, wrong)
+    frame = demo_frame.loc["2021-05-01":"2021-07-31"]
+    config = Config(clock_check="warn", ustar_method="fixed", ustar_bootstrap_draws=0,
+                    random_error_draws=20)
+    result = process(frame, wrong, config)
+    assert result.provenance["clock"]["status"] == "shifted"
+    assert abs(result.provenance["clock"]["shift_minutes"] - 60.0) < 8.0
+    assert result.provenance["clock"]["setting"] == "warn"
+    assert any(w.startswith("clock:") for w in result.warnings)
+
+
+def test_findings_are_sorted_fatal_first_and_print_their_stage():
+    """Fatal findings come first; str() gives 'stage: message'."""
+    index = pd.date_range("2021-01-01", periods=96, freq="30min")
+    frame = pd.DataFrame({"nee": 1.0, "rg": 0.0, "tair": 5.0, "vpd": 2.0, "ustar": 0.3},
+                         index=index)
+    _, findings = check_record(frame, demo.site())
+    flags = [f.fatal for f in findings]
+    assert flags == sorted(flags, reverse=True) and flags[0]
+    assert str(findings[0]).startswith(findings[0].stage + ": ")
