@@ -79,6 +79,7 @@ def _command_demo(args) -> int:
     from .config import Config
     from .pipeline import process
 
+    _check_output_folder(Path(args.out))
     frame, truth = demo.site_year(seed=args.seed)
     site = demo.site()
     bar, advance = _progress_bar(Config(), args.quiet)
@@ -108,16 +109,43 @@ def _command_demo(args) -> int:
     return 0
 
 
+def _check_output_folder(out: Path) -> None:
+    """Fail before any computation where the result folder `out` cannot be written."""
+    import tempfile
+
+    out = out.absolute()
+    if out.exists() and not out.is_dir():
+        raise FluxpartError(f"--out {str(out)!r} is an existing file, not a folder; choose "
+                            "another --out")
+    if out.is_dir() and any(out.iterdir()) and not (out / "manifest.json").is_file():
+        raise FluxpartError(f"--out {str(out)!r} is a folder holding other files and no "
+                            "manifest.json (not a fluxpart result folder, which is replaced "
+                            "whole); choose another --out")
+    ancestor = out.parent
+    while not ancestor.exists():
+        ancestor = ancestor.parent
+    if not ancestor.is_dir():
+        raise FluxpartError(f"--out {str(out)!r}: {str(ancestor)!r} is a file, so no folder "
+                            "can be made below it; choose another --out")
+    try:
+        with tempfile.TemporaryFile(dir=ancestor):
+            pass
+    except OSError as error:
+        raise FluxpartError(f"--out {str(out)!r}: cannot write in {str(ancestor)!r} "
+                            f"({error.strerror or error}); choose a writable place") from None
+
+
 def _command_run(args) -> int:
     from .config import Config
     from .pipeline import process_site_config
 
     config = Config.from_toml(args.config)
+    out = Path(args.out) if args.out else Path(args.config).with_suffix("").parent / (
+        Path(args.config).stem + "-output")
+    _check_output_folder(out)
     bar, advance = _progress_bar(config, args.quiet)
     with bar:
         result = process_site_config(args.config, config, progress=advance)
-    out = Path(args.out) if args.out else Path(args.config).with_suffix("").parent / (
-        Path(args.config).stem + "-output")
     result.write(out)
     print(f"fluxpart run: {result.site.name}, {len(result.timeseries)} records")
     print()
@@ -129,26 +157,62 @@ def _command_run(args) -> int:
     return 0
 
 
+def _format_clock(verdict) -> str:
+    """The clock and site-geometry section of ``fluxpart check``."""
+    if verdict is None:
+        return "clock and site geometry: not checked ([processing] clock_check = \"off\")"
+    lines = ["clock and site geometry (measured Rg against potential radiation)"]
+    if verdict.months_used:
+        lines.append(f"  shift of Rg      {verdict.shift_minutes:+.0f} min (spread "
+                     f"{verdict.spread_minutes:.0f} min over {verdict.months_used} months; "
+                     "positive = Rg later than the sun)")
+    lines.append(f"  clock            {verdict.status.replace('_', ' ')}")
+    lines.append(f"  hemisphere       {verdict.hemisphere.replace('_', ' ')}")
+    lines.extend(f"  note: {note}" for note in verdict.notes)
+    return "\n".join(lines)
+
+
 def _command_check(args) -> int:
+    """List every problem ``run`` would trip on; exit 0 clean, 1 problems, 2 error."""
     from .config import Config
     from .coverage import coverage_table, format_check
     from .io import read_site_config
-    from .pipeline import screening_summary
+    from .pipeline import check_record, screening_summary
 
     site_config = read_site_config(args.config)
+    config = Config.from_toml(args.config)
     frame, report = site_config.read()
     table = coverage_table(frame, report.interval_minutes)
-    print(format_check(site_config.site, report, table))
-    counts, thresholds = screening_summary(frame, site_config.site,
-                                           Config.from_toml(args.config))
-    print("\nscreening of NEE (records per first reason, before the u* filter)")
-    print(counts.to_string())
-    print("\nu* threshold [m s-1] (bootstrap percentiles where drawn)")
-    columns = [c for c in ("year", "period", "threshold", "threshold_p05", "threshold_p50",
-                           "threshold_p95", "night_records", "source", "reason")
-               if c in thresholds.columns]
-    print(thresholds[columns].to_string(index=False, float_format=lambda v: f"{v:.3f}"))
-    return 0
+    verdict, findings = check_record(frame, site_config.site, config,
+                                     time_marks=report.time_marks,
+                                     shift_applied_minutes=report.shift_minutes)
+    refuse = config.clock_check == "refuse"
+    problems = [f"{text}{' (run stops)' if refuse else ''}"
+                for text in (verdict.problems if verdict is not None else ())]
+    problems += [f"{finding}{' (run stops)' if finding.fatal else ''}" for finding in findings]
+    if not any(finding.fatal for finding in findings):
+        counts, thresholds = screening_summary(frame, site_config.site, config)
+        fallback = sorted(set(thresholds.loc[thresholds["source"] == "fallback", "year"]))
+        if fallback and not any(f.stage == "u* threshold" for f in findings):
+            problems.append(f"u* threshold: not detectable in {', '.join(map(str, fallback))}; "
+                            f"the fixed ustar_threshold = {config.ustar_threshold:g} m s-1 "
+                            "would be used there")
+    else:
+        counts = thresholds = None
+    print(format_check(site_config.site, report, table, problems=problems))
+    print(_format_clock(verdict))
+    if counts is not None:
+        print("\nscreening of NEE (records per first reason, before the u* filter)")
+        print(counts.to_string())
+        print("\nu* threshold [m s-1] (bootstrap percentiles where drawn)")
+        columns = [c for c in ("year", "period", "threshold", "threshold_p05", "threshold_p16",
+                               "threshold_p50", "threshold_p84", "threshold_p95",
+                               "night_records", "source", "reason")
+                   if c in thresholds.columns]
+        print(thresholds[columns].to_string(index=False, float_format=lambda v: f"{v:.3f}"))
+    else:
+        print("\nscreening and u* threshold: not estimated (run would stop; see the problems)")
+    return 1 if (problems or report.warnings) else 0
 
 
 def _parser() -> argparse.ArgumentParser:

@@ -79,3 +79,49 @@ def test_run_repeats_the_readers_unit_warning(example, tmp_path, capsys):
     assert "warning: input:" in out and "kPa" in out
     manifest = json.loads((tmp_path / "out" / "manifest.json").read_text())
     assert any("kPa" in text for text in manifest["provenance"]["reader"]["warnings"])
+
+
+def test_check_names_a_wrong_utc_offset_and_run_refuses_it(example, tmp_path, capsys):
+    """Issue 12: a clock an hour off is a problem for `check` (exit 1, naming
+    utc_offset = 1) and `run` refuses it with exit 2 before writing anything."""
+    # the example's stamps are UTC+1 (fluxpart.demo); declared UTC+0, Rg comes 60 min
+    # late against the sun (Earth turns 15° per hour; sun from fluxpart.solar, itself
+    # checked against pvlib's SPA in test_solar.py)
+    example.write_text(example.read_text().replace("utc_offset = 1.0", "utc_offset = 0.0"))
+    assert main(["check", str(example)]) == 1
+    out = capsys.readouterr().out
+    assert "clock:" in out and "utc_offset = 1" in out and "(run stops)" in out
+    assert main(["run", str(example), "--out", str(tmp_path / "out"), "--quiet"]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("error: clock:") and "utc_offset = 1" in err
+    assert 'clock_check = "warn"' in err and "Traceback" not in err
+    assert not (tmp_path / "out").exists()
+
+
+def test_degenerate_record_check_exits_1_run_exits_2(example, tmp_path, capsys):
+    """One day of data: `check` names the E0 stage (exit 1); `run` stops before fitting
+    with the same cause (exit 2). Lloyd–Taylor E0 needs 15-day windows of night NEE over
+    5 K (Reichstein et al. 2005)."""
+    csv = example.with_suffix(".csv")
+    lines = csv.read_text().splitlines()
+    csv.write_text("\n".join(lines[:49]) + "\n")
+    assert main(["check", str(example)]) == 1
+    out = capsys.readouterr().out
+    assert "nighttime partitioning (E0)" in out and "less than a year" in out
+    assert main(["run", str(example), "--out", str(tmp_path / "out"), "--quiet"]) == 2
+    err = capsys.readouterr().err
+    assert "nighttime partitioning (E0)" in err and "Traceback" not in err
+
+
+@pytest.mark.parametrize("place", ["existing_file", "below_a_file"])
+def test_out_that_cannot_be_written_fails_before_computing(example, tmp_path, capsys, place):
+    """`--out` naming an existing file, or a folder below a file: exit 2 at once, naming
+    --out, with nothing computed (no output on stdout)."""
+    blocker = tmp_path / "taken.txt"
+    blocker.write_text("not a folder")
+    out = blocker if place == "existing_file" else blocker / "sub" / "out"
+    assert main(["run", str(example), "--out", str(out), "--quiet"]) == 2
+    captured = capsys.readouterr()
+    assert captured.err.startswith("error: --out") and "Traceback" not in captured.err
+    assert captured.out == ""
+    assert blocker.read_text() == "not a folder"
