@@ -80,10 +80,13 @@ _CONNECT_TIMEOUT_SECONDS = 10
 _RESERVED_KEYS = {NETWORK_DATASET, FAILURES_FILE}
 _SITE_COLUMNS = {
     "site_name": ("", "the site's [site] name"),
-    "latitude": ("degrees", "latitude of the tower, north positive"),
-    "longitude": ("degrees", "longitude of the tower, east positive"),
+    "latitude": ("degree_north", "latitude of the tower, north positive"),
+    "longitude": ("degree_east", "longitude of the tower, east positive"),
+    "utc_offset": ("hour", "offset of the site's local standard time from UTC; the stamps of "
+                   "the site's tables are in it"),
 }
-_SITE_FIELDS = {"site_name": "name", "latitude": "latitude", "longitude": "longitude"}
+_SITE_FIELDS = {"site_name": "name", "latitude": "latitude", "longitude": "longitude",
+                "utc_offset": "utc_offset"}
 _FAILURE_COLUMNS = {
     "site": ("", "site key (the result folder's name)"),
     "config": ("", "absolute path of the site config"),
@@ -715,7 +718,9 @@ def _summary(report: BatchReport) -> str:
         columns = [c for c in _SUMMARY_COLUMNS if c in report.network.columns]
         lines += ["", "Annual budgets [g C m-2; NEE < 0 is net uptake]:",
                   report.network[columns].to_string(
-                      index=False, float_format=lambda v: f"{v:9.1f}")]
+                      index=False, float_format=lambda v: f"{v:9.1f}",
+                      # u* thresholds in m s-1 need their three decimals (0.177, not 0.2)
+                      formatters={"ustar_threshold": lambda v: f"{v:9.3f}"})]
     lines += ["", f"Wrote {report.out}/ (one result folder per site, {NETWORK_DATASET}/, "
               f"{FAILURES_FILE})", f"Caution: {CAUTION}"]
     return "\n".join(lines)

@@ -9,9 +9,11 @@ from __future__ import annotations
 
 import argparse
 import sys
+import warnings
 from pathlib import Path
 
-from .errors import FluxpartError
+from . import __version__
+from .errors import FluxpartError, FluxpartWarning
 from .manifest import CAUTION
 
 __all__ = ["main"]
@@ -219,6 +221,7 @@ def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="fluxpart",
         description="Carbon budgets from eddy-covariance flux-tower records.")
+    parser.add_argument("--version", action="version", version=f"%(prog)s {__version__}")
     commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
 
     demo = commands.add_parser("demo", help="run the full pipeline on the invented demo site")
@@ -281,6 +284,13 @@ def _parser() -> argparse.ArgumentParser:
     batch.add_argument("--force", action="store_true", help="rerun sites already up to date")
     batch.add_argument("--quiet", action="store_true", help="no progress output")
     batch.set_defaults(handler=_lazy("batch", "command_batch"))
+
+    export = commands.add_parser(
+        "export", help="write a result folder as CF-1.10 NetCDF (needs the netcdf extra)")
+    export.add_argument("directory", help="result folder written by run or demo")
+    export.add_argument("--netcdf", required=True, metavar="FILE",
+                        help="NetCDF file to write (half-hourly and daily series)")
+    export.set_defaults(handler=_lazy("export", "command_export"))
     return parser
 
 
@@ -297,7 +307,10 @@ def main(argv=None) -> int:
     """Run the command line; return the exit status."""
     args = _parser().parse_args(argv)
     try:
-        return args.handler(args)
+        with warnings.catch_warnings():
+            # the commands print a result's warnings themselves, once, in their output
+            warnings.simplefilter("ignore", FluxpartWarning)
+            return args.handler(args)
     except FluxpartError as error:
         print(f"error: {error}", file=sys.stderr)
         return 2

@@ -289,7 +289,7 @@ _BUDGET_PATTERNS = [
                 "(provenance, uncertainty, not_quantified)")),
     (rf"({_FLUX_PATTERN})_(random_error|uncertainty|sigma)",
      lambda m: (CARBON, f"one standard deviation of the period's {m[1]} sum ({_CARBON_SUM})")),
-    (rf"({_FLUX_PATTERN})_uncertainty_(\w+)",
+    (rf"({_FLUX_PATTERN}|gpp|reco)_uncertainty_(\w+)",
      lambda m: (CARBON, f"1 sigma: the {m[2].replace('_', ' ')} part of the uncertainty of "
                 f"{m[1]} ({_CARBON_SUM})")),
     (r"gpp_nighttime", lambda m: (CARBON, f"GPP summed over the period, nighttime method "

@@ -17,6 +17,7 @@ import sys
 import time
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 import pytest
 
@@ -369,7 +370,7 @@ def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster
     table = dataset.to_table().to_pandas()
     assert sorted(table["site"].astype(str).unique()) == sorted(configs)
     assert pq.read_schema(folder / "site=tower0" / "part-0.parquet").field(
-        "nee").metadata[b"unit"] == b"g C m-2"
+        "nee").metadata[b"unit"] == b"g m-2"          # UDUNITS-2; carbon in the description
 
     frame = pd.read_parquet(folder)
     assert "site" in frame.columns and len(frame) == len(table) == len(report.network)
@@ -381,4 +382,9 @@ def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster
         pd.testing.assert_frame_equal(got[expected.columns], expected, check_dtype=False)
         rows = frame[frame["site"].astype(str) == key]
         assert rows["site_name"].iloc[0].endswith("(fictional)")
+        assert np.isfinite(rows["utc_offset"].to_numpy(dtype=float)).all()     # issue 15
+    # the summary prints u* thresholds with their three decimals (issue 15)
+    summary = batch._summary(report)
+    for value in report.network["ustar_threshold"].dropna():
+        assert f"{value:.3f}" in summary
     assert report.failures.empty and pq.read_table(report.out / "failures.parquet").num_rows == 0

@@ -1,0 +1,338 @@
+"""CF-1.10 NetCDF export of a result: ``fluxpart export DIR --netcdf FILE``, ``Result.to_xarray()``.
+
+A modeller who calibrates or benchmarks a land-surface model wants the series in the
+form such models read: NetCDF following the CF conventions, fluxes of carbon in
+kg m-2 s-1, times in UTC with their cell bounds, quality flags that explain
+themselves and the site as global attributes. :func:`to_xarray` builds that
+:class:`xarray.Dataset` from a :class:`~fluxpart.pipeline.Result` (in memory or loaded
+from a result folder) and :func:`write_netcdf` writes it.
+
+Layout (one file, two time axes):
+
+- ``time`` (one per record): NEE, GPP and Reco of both methods as carbon mass fluxes
+  [kg m-2 s-1] (the record means; ``cell_methods = "time: mean"``), the 1-sigma random
+  error of NEE, the drivers (Rg, Tair, VPD, u*, Tsoil where present) and the flag
+  variables ``nee_fill_quality`` and ``rejection_reason`` (``flag_values`` /
+  ``flag_meanings``);
+- ``day`` (one per local standard day): the same fluxes as daily means [kg m-2 s-1]
+  and as daily sums [g m-2, carbon] (``cell_methods = "time: sum"``), with their 1-sigma
+  where the run estimated it;
+- ``time_bounds`` and ``day_bounds`` give each cell's start and end; coordinate values
+  are the cell midpoints, in UTC (the site's local standard time minus its
+  ``utc_offset``, which is also a global attribute);
+- scalar coordinates ``lat``, ``lon`` and ``station_name`` (``featureType =
+  "timeSeries"``) and the site, the record length and the caution as global attributes.
+
+Standard names are given where the CF standard name table has one that fits (those
+recalled from memory are marked "(m)" in :data:`STANDARD_NAMES`); NEE, Reco and u*
+have none we could confirm, so they carry a ``long_name`` only, and the downward
+net flux ``nep`` = -NEE carries the CF name of the net land carbon flux.
+
+Needs the ``netcdf`` extra (xarray and h5netcdf; netCDF4 is used instead when it is
+installed).
+
+References
+----------
+Eaton, B. et al. (2022). NetCDF Climate and Forecast (CF) Metadata Conventions,
+version 1.10. https://cfconventions.org (sections 3.3 standard names, 3.5 flags,
+4.4 time, 7.1 cell boundaries, 7.3 cell methods, 9 discrete sampling geometries).
+"""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from .errors import FluxpartError, InputFileError
+from .units import KG_CARBON_PER_UMOL
+
+__all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf"]
+
+#: CF standard names used, per exported variable. Each was recalled from the CF
+#: standard name table (m), except the GPP name, which the CF table and DESIGN.md cite.
+STANDARD_NAMES = {
+    "gpp": "gross_primary_productivity_of_biomass_expressed_as_carbon",
+    # (m) downward = uptake by the land: -NEE
+    "nep": ("surface_net_downward_mass_flux_of_carbon_dioxide_expressed_as_carbon_due_to_all_"
+            "land_processes_excluding_anthropogenic_land_use_change"),
+    "rg": "surface_downwelling_shortwave_flux_in_air",      # (m)
+    "tair": "air_temperature",                              # (m)
+    "tsoil": "soil_temperature",                            # (m)
+    "vpd": "water_vapor_saturation_deficit_in_air",         # (m)
+    "rh": "relative_humidity",                              # (m)
+    "time": "time",
+    "lat": "latitude",
+    "lon": "longitude",
+}
+
+_CONVENTIONS = "CF-1.10"
+_TIME_UNITS = "minutes since 1970-01-01 00:00:00"
+_CALENDAR = "proleptic_gregorian"
+_FLUXES = {
+    "nee": ("nee_filled", "net ecosystem exchange of CO2 as carbon, gap-filled; positive = "
+            "release to the atmosphere, negative = uptake"),
+    "gpp_nighttime": ("gpp_nighttime", "gross primary production as carbon, nighttime method "
+                      "(Reco - NEE); at night it scatters around zero and can be negative"),
+    "gpp_daytime": ("gpp_daytime", "gross primary production as carbon, daytime "
+                    "light-response method; >= 0"),
+    "reco_nighttime": ("reco_nighttime", "ecosystem respiration as carbon, nighttime method "
+                       "(Lloyd-Taylor); positive = release"),
+    "reco_daytime": ("reco_daytime", "ecosystem respiration as carbon, daytime light-response "
+                     "method; positive = release"),
+}
+_DRIVERS = {   # canonical name -> (file column, export unit, factor, long name)
+    "rg": ("rg_filled", "W m-2", 1.0, "global radiation, gap-filled"),
+    "tair": ("tair_filled", "degC", 1.0, "air temperature, gap-filled"),
+    "vpd": ("vpd_filled", "Pa", 100.0, "vapour pressure deficit, gap-filled"),
+    "tsoil": ("tsoil_filled", "degC", 1.0, "soil temperature, gap-filled"),
+    "ustar": ("ustar", "m s-1", 1.0, "friction velocity u*, as measured"),
+    "rh": ("rh", "percent", 1.0, "relative humidity, as measured"),
+}
+_CAUTION = ("A tower budget is one line of evidence for carbon-credit quantification, not a "
+            "certified credit; the applicable crediting methodology and accredited verification "
+            "decide how it may be used.")
+
+
+def _xarray():
+    try:
+        import xarray
+    except ImportError:
+        raise FluxpartError('the NetCDF export needs xarray and a NetCDF engine; install the '
+                            'netcdf extra: pip install "fluxpart[netcdf]"') from None
+    return xarray
+
+
+def _engine() -> str:
+    for module, engine in (("netCDF4", "netcdf4"), ("h5netcdf", "h5netcdf")):
+        try:
+            __import__(module)
+        except ImportError:
+            continue
+        return engine
+    raise FluxpartError('writing NetCDF needs h5netcdf or netCDF4; install the netcdf extra: '
+                        'pip install "fluxpart[netcdf]"')
+
+
+def _interval_minutes(index: pd.DatetimeIndex) -> int:
+    steps = np.diff(index.to_numpy().astype("datetime64[s]").astype(np.int64))
+    if steps.size == 0:
+        raise InputFileError("the timeseries has fewer than two records; nothing to export")
+    return int(np.median(steps) // 60)
+
+
+def _flag(values, name: str, long_name: str):
+    """Codes, attributes of a CF flag variable from a labelled (categorical) column."""
+    labels = pd.Categorical(values) if not isinstance(values, pd.Categorical) else values
+    if not isinstance(getattr(values, "dtype", None), pd.CategoricalDtype) and \
+            pd.api.types.is_numeric_dtype(np.asarray(values)):
+        raise FluxpartError(f"column {name!r} holds codes, not labels; export a result of this "
+                            "version of fluxpart (load the folder again or rerun)")
+    codes = np.asarray(labels.codes, dtype=np.int8)
+    if (codes < 0).any():
+        raise FluxpartError(f"column {name!r} has records without a label; cannot write it as "
+                            "a CF flag")
+    meanings = " ".join(str(c).replace(" ", "_") for c in labels.categories)
+    return codes, {"long_name": long_name, "flag_values": np.arange(len(labels.categories),
+                                                                     dtype=np.int8),
+                   "flag_meanings": meanings}
+
+
+def _bounds(starts: pd.DatetimeIndex, length: pd.Timedelta, offset: pd.Timedelta):
+    """UTC cell midpoints and (n, 2) bounds of cells starting at local `starts`."""
+    start_utc = (starts - offset).to_numpy()
+    end_utc = (starts + length - offset).to_numpy()
+    middle = start_utc + (end_utc - start_utc) / 2
+    return middle, np.stack([start_utc, end_utc], axis=1)
+
+
+def to_xarray(result):
+    """Return the half-hourly and daily series of a result as a CF-1.10 Dataset.
+
+    Parameters
+    ----------
+    result : fluxpart.pipeline.Result or path-like
+        A result from :func:`fluxpart.process` or :func:`fluxpart.load`, or a result
+        folder (loaded first).
+
+    Returns
+    -------
+    xarray.Dataset
+        Dimensions ``time`` (records) and ``day`` (local standard days), ``nv`` = 2
+        for the bounds. Fluxes of carbon in kg m-2 s-1 (record and daily means) and
+        daily sums in g m-2 (carbon); drivers in CF units; flags with
+        ``flag_values``/``flag_meanings``; times in UTC with bounds; the site as
+        global attributes. Each variable's unit is a UDUNITS-2 string.
+
+    Raises
+    ------
+    FluxpartError
+        If xarray is not installed, or the result lacks a required column.
+
+    Notes
+    -----
+    Carbon mass flux [kg m-2 s-1] = flux [µmol CO2 m-2 s-1] x 12.011e-9 kg µmol-1
+    (one C per CO2; IUPAC conventional atomic weight of carbon 12.011 g mol-1). A daily
+    mean is the daily sum divided by the seconds of the records present that day.
+    """
+    xr = _xarray()
+    if isinstance(result, (str, os.PathLike)):
+        from .pipeline import load
+
+        result = load(result)
+    series = result.timeseries
+    missing = [column for column, _ in _FLUXES.values() if column not in series.columns]
+    if missing:
+        raise FluxpartError(f"the timeseries lacks column(s) {', '.join(map(repr, missing))}; "
+                            "cannot export")
+    site = result.site
+    interval = _interval_minutes(series.index)
+    offset = pd.Timedelta(hours=float(site.utc_offset))
+    time, time_bounds = _bounds(series.index, pd.Timedelta(minutes=interval), offset)
+    variables = {"time_bounds": (("time", "nv"), time_bounds)}
+    mean_attrs = {"cell_methods": "time: mean", "units": "kg m-2 s-1"}
+    ancillary = []
+    for flag_column, long_name in (("nee_fill_quality", "fill quality of nee"),
+                                   ("rejection_reason", "screening outcome of the measured NEE "
+                                    "(first reason it was rejected)")):
+        if flag_column in series.columns:
+            codes, attrs = _flag(series[flag_column].array, flag_column, long_name)
+            variables[flag_column] = ("time", codes, attrs)
+            ancillary.append(flag_column)
+    if "nee_random_error" in series.columns:
+        variables["nee_random_error"] = (
+            "time", series["nee_random_error"].to_numpy(dtype=float) * KG_CARBON_PER_UMOL,
+            {"long_name": "random error of nee, one standard deviation (as carbon)",
+             "units": "kg m-2 s-1"})
+        ancillary.append("nee_random_error")
+    for name, (column, long_name) in _FLUXES.items():
+        values = series[column].to_numpy(dtype=float) * KG_CARBON_PER_UMOL
+        attrs = {"long_name": long_name, **mean_attrs}
+        if name.startswith("gpp"):
+            attrs["standard_name"] = STANDARD_NAMES["gpp"]
+        if name == "nee" and ancillary:
+            attrs["ancillary_variables"] = " ".join(ancillary)
+        variables[name] = ("time", values, attrs)
+    variables["nep"] = ("time", -variables["nee"][1],
+                        {"long_name": "net ecosystem production as carbon = -nee; positive = "
+                         "uptake by the land", "standard_name": STANDARD_NAMES["nep"],
+                         **mean_attrs})
+    for name, (column, unit, factor, long_name) in _DRIVERS.items():
+        if column in series.columns:
+            attrs = {"long_name": long_name, "units": unit, "cell_methods": "time: mean"}
+            if name in STANDARD_NAMES:
+                attrs["standard_name"] = STANDARD_NAMES[name]
+            variables[name] = ("time", series[column].to_numpy(dtype=float) * factor, attrs)
+
+    daily = result.daily
+    day, day_bounds = _bounds(pd.DatetimeIndex(daily.index), pd.Timedelta(days=1), offset)
+    variables["day_bounds"] = (("day", "nv"), day_bounds)
+    seconds = daily["records"].to_numpy(dtype=float) * interval * 60.0 \
+        if "records" in daily.columns else np.full(len(daily), 86400.0)
+    seconds = np.where(seconds > 0, seconds, np.nan)
+    for name in _FLUXES:
+        if name not in daily.columns:
+            continue
+        grams = daily[name].to_numpy(dtype=float)
+        text = _FLUXES[name][1]
+        mean = {"long_name": f"daily mean of {text}", "units": "kg m-2 s-1",
+                "cell_methods": "day: mean (over the records present)"}
+        if name.startswith("gpp"):
+            mean["standard_name"] = STANDARD_NAMES["gpp"]
+        variables[f"{name}_daily_mean"] = ("day", grams * 1e-3 / seconds, mean)
+        variables[f"{name}_daily_sum"] = ("day", grams, {
+            "long_name": f"daily sum of {text}; grams of carbon", "units": "g m-2",
+            "cell_methods": "day: sum"})
+        sigma = f"{name}_sigma"
+        if sigma in daily.columns:
+            variables[f"{name}_daily_sum_sigma"] = ("day", daily[sigma].to_numpy(dtype=float), {
+                "long_name": f"one standard deviation of the daily sum of {name}; grams of carbon",
+                "units": "g m-2"})
+    if "share_measured" in daily.columns:
+        variables["share_measured_daily"] = ("day", daily["share_measured"].to_numpy(dtype=float),
+                                             {"long_name": "share of the day's records with "
+                                              "measured NEE", "units": "1"})
+
+    coords = {
+        "time": ("time", time, {"standard_name": "time", "long_name": "middle of the averaging "
+                                "interval, UTC", "axis": "T", "bounds": "time_bounds"}),
+        "day": ("day", day, {"standard_name": "time", "long_name": "middle of the local "
+                             "standard day, UTC", "bounds": "day_bounds"}),
+        "lat": ((), float(site.latitude), {"standard_name": "latitude",
+                                           "units": "degrees_north"}),
+        "lon": ((), float(site.longitude), {"standard_name": "longitude",
+                                            "units": "degrees_east"}),
+        "station_name": ((), str(site.name), {"cf_role": "timeseries_id",
+                                              "long_name": "site name"}),
+    }
+    data_vars = {name: spec if len(spec) == 3 else (*spec, {})
+                 for name, spec in variables.items()}
+    dataset = xr.Dataset(data_vars=data_vars, coords=coords)
+    for name in ("time", "day", "time_bounds", "day_bounds"):
+        dataset[name].encoding.update({"units": _TIME_UNITS, "calendar": _CALENDAR,
+                                       "dtype": "float64"})
+    for variable in dataset.data_vars.values():
+        # NaN marks a missing float; the flags have no missing value (no _FillValue)
+        variable.encoding["_FillValue"] = np.nan if variable.dtype.kind == "f" else None
+    from . import __version__
+
+    dataset.attrs = {
+        "Conventions": _CONVENTIONS,
+        "featureType": "timeSeries",
+        "title": f"Eddy-covariance carbon fluxes of {site.name}: gap-filled NEE and its "
+                 "partitioning into GPP and Reco",
+        "source": f"fluxpart {__version__}",
+        "site_name": str(site.name),
+        "site_latitude": float(site.latitude),
+        "site_longitude": float(site.longitude),
+        "site_utc_offset_hours": float(site.utc_offset),
+        "interval_minutes": int(interval),
+        "time_convention": "time values are UTC cell midpoints; the Parquet tables of the same "
+                           "result stamp the start of each interval in local standard time "
+                           "(UTC + site_utc_offset_hours)",
+        "sign_convention": "nee, reco: positive = release to the atmosphere; gpp positive = "
+                           "uptake; nep = -nee",
+        "comment": _CAUTION,
+    }
+    return dataset
+
+
+def write_netcdf(result, path) -> Path:
+    """Write :func:`to_xarray` of `result` to the NetCDF file `path` (atomically).
+
+    Parameters
+    ----------
+    result : fluxpart.pipeline.Result or path-like
+        A result, or a result folder.
+    path : path-like
+        The NetCDF (netCDF-4) file to write; its folder is created.
+
+    Returns
+    -------
+    pathlib.Path
+        The file written.
+    """
+    dataset = to_xarray(result)
+    engine = _engine()
+    path = Path(path)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    os.close(handle)
+    try:
+        dataset.to_netcdf(temporary, engine=engine, format="NETCDF4")
+        os.chmod(temporary, 0o644)
+        os.replace(temporary, path)
+    except BaseException:
+        Path(temporary).unlink(missing_ok=True)
+        raise
+    return path
+
+
+def command_export(args) -> int:
+    """``fluxpart export DIR --netcdf FILE``: write the folder's series as CF NetCDF."""
+    path = write_netcdf(args.directory, args.netcdf)
+    print(f"wrote {path} (CF-1.10 NetCDF: records and days, carbon fluxes in kg m-2 s-1)")
+    return 0

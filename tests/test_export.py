@@ -1,0 +1,122 @@
+"""CF-1.10 NetCDF export, reopened with xarray as a modeller would (issue 15)."""
+
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.cli import main
+from fluxpart.export import STANDARD_NAMES, to_xarray, write_netcdf
+
+xr = pytest.importorskip("xarray")
+pytest.importorskip("h5netcdf")
+cf_units = pytest.importorskip("cf_units")
+
+
+@pytest.fixture(scope="module")
+def exported(written_demo, tmp_path_factory):
+    """The shared demo result folder exported by the command line and reopened."""
+    result, folder = written_demo
+    path = tmp_path_factory.mktemp("netcdf") / "site.nc"
+    assert main(["export", str(folder), "--netcdf", str(path)]) == 0
+    with xr.open_dataset(path) as dataset:
+        yield result, dataset.load()
+
+
+def test_carbon_fluxes_in_kg_per_m2_s(exported):
+    """Record fluxes are kg C m-2 s-1: µmol CO2 m-2 s-1 x 12.011e-9 (IUPAC C = 12.011)."""
+    result, dataset = exported
+    series = result.timeseries
+    for name, column in (("nee", "nee_filled"), ("gpp_daytime", "gpp_daytime"),
+                         ("reco_nighttime", "reco_nighttime")):
+        assert dataset[name].attrs["units"] == "kg m-2 s-1"
+        np.testing.assert_allclose(dataset[name].to_numpy(),
+                                   series[column].to_numpy(dtype=float) * 12.011e-9,
+                                   rtol=1e-12, equal_nan=True)
+    np.testing.assert_allclose(dataset["nep"].to_numpy(), -dataset["nee"].to_numpy())
+    assert dataset["gpp_nighttime"].attrs["standard_name"] == \
+        "gross_primary_productivity_of_biomass_expressed_as_carbon"
+
+
+def test_every_unit_is_udunits(exported):
+    """Every variable's units parse with UDUNITS-2 (cf_units 3.x `Unit`)."""
+    _, dataset = exported
+    for name, variable in dataset.variables.items():
+        unit = variable.attrs.get("units")
+        if unit is not None:
+            assert not cf_units.Unit(unit).is_unknown(), (name, unit)
+
+
+def test_time_is_utc_with_bounds_and_daily_sums_agree(exported):
+    """Times are UTC midpoints inside their bounds; the daily sums are the daily table's."""
+    result, dataset = exported
+    offset = pd.Timedelta(hours=result.site.utc_offset)
+    first = result.timeseries.index[0]
+    assert pd.Timestamp(dataset["time_bounds"].values[0, 0]) == first - offset
+    assert pd.Timestamp(dataset["time"].values[0]) == first - offset + pd.Timedelta(minutes=15)
+    assert dataset["time"].attrs["bounds"] == "time_bounds"
+    assert pd.Timestamp(dataset["day_bounds"].values[0, 1]) - \
+        pd.Timestamp(dataset["day_bounds"].values[0, 0]) == pd.Timedelta(days=1)
+    np.testing.assert_allclose(dataset["gpp_daytime_daily_sum"].to_numpy(),
+                               result.daily["gpp_daytime"].to_numpy(dtype=float), rtol=1e-12)
+    # a daily mean flux times the seconds of the day's records gives the sum back
+    seconds = result.daily["records"].to_numpy(dtype=float) * 1800.0
+    np.testing.assert_allclose(dataset["nee_daily_mean"].to_numpy() * seconds * 1e3,
+                               result.daily["nee"].to_numpy(dtype=float), rtol=1e-12)
+    assert dataset["nee"].attrs["cell_methods"] == "time: mean"
+    assert dataset["nee_daily_sum"].attrs["cell_methods"] == "day: sum"
+
+
+def test_flags_explain_themselves(exported):
+    """flag_values/flag_meanings decode to the labels of the Parquet column (CF §3.5)."""
+    result, dataset = exported
+    flag = dataset["nee_fill_quality"]
+    meanings = flag.attrs["flag_meanings"].split()
+    assert meanings[:4] == ["measured", "A", "B", "C"] and "unfilled" in meanings
+    decoded = np.array(meanings)[flag.to_numpy().astype(int)]
+    np.testing.assert_array_equal(decoded, result.timeseries["nee_fill_quality"].astype(str))
+    assert "nee_fill_quality" in dataset["nee"].attrs["ancillary_variables"]
+    assert "low_ustar" in dataset["rejection_reason"].attrs["flag_meanings"].split()
+
+
+def test_site_and_conventions_are_global_attributes(exported):
+    """The site, CF version, feature type and the caution travel with the file."""
+    result, dataset = exported
+    attrs = dataset.attrs
+    assert attrs["Conventions"] == "CF-1.10" and attrs["featureType"] == "timeSeries"
+    assert attrs["site_name"] == result.site.name
+    assert attrs["site_utc_offset_hours"] == result.site.utc_offset
+    assert float(dataset["lat"]) == result.site.latitude
+    assert dataset["lat"].attrs["units"] == "degrees_north"
+    assert "certified" in attrs["comment"]
+    assert set(STANDARD_NAMES.values()) >= {dataset["rg"].attrs["standard_name"]}
+
+
+def test_to_xarray_on_the_result_matches_the_loaded_folder(written_demo, tmp_path):
+    """`Result.to_xarray()` in memory gives what the export of its folder gives."""
+    result, folder = written_demo
+    in_memory = result.to_xarray()
+    from_folder = to_xarray(folder)
+    xr.testing.assert_allclose(in_memory[["nee", "gpp_daytime_daily_sum"]],
+                               from_folder[["nee", "gpp_daytime_daily_sum"]])
+    path = write_netcdf(result, tmp_path / "sub" / "x.nc")
+    assert path.exists() and [p.name for p in Path(path).parent.iterdir()] == ["x.nc"]
+
+
+def test_export_of_a_missing_folder_is_one_error_line(tmp_path, capsys):
+    """A folder that is not a result gives exit 2 and one `error:` line naming it."""
+    status = main(["export", str(tmp_path / "nothing"), "--netcdf", str(tmp_path / "x.nc")])
+    err = capsys.readouterr().err
+    assert status == 2 and err.startswith("error:") and "nothing" in err
+    assert not (tmp_path / "x.nc").exists()
+
+
+def test_version_flag_prints_the_package_version(capsys):
+    """`fluxpart --version` prints the one version the package and its metadata share."""
+    import fluxpart
+
+    with pytest.raises(SystemExit) as stop:
+        main(["--version"])
+    assert stop.value.code == 0
+    assert capsys.readouterr().out.strip() == f"fluxpart {fluxpart.__version__}"
