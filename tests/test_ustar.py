@@ -299,12 +299,10 @@ def test_short_canopy_floor_keeps_a_low_threshold():
     """
     floors = REFERENCE["canopy_floor"]
     assert ustar.CANOPY_FLOORS == {"short": floors["short"], "tall": floors["tall"]}
-    index, nee, friction, tair, is_night = _night_record(21, damped=False)
+    index, undamped, friction, tair, is_night = _night_record(21, damped=False)
     # a calm site: u* scaled down (mean 0.14 m s-1), NEE damped below 0.06 m s-1
     friction = 0.4 * friction
-    true = nee
-    nee = true * np.minimum(1.0, friction / 0.06)
-    record = (index, nee, friction, tair, is_night)
+    record = (index, undamped * np.minimum(1.0, friction / 0.06), friction, tair, is_night)
     short = _run(record, min_threshold=ustar.CANOPY_FLOORS["short"], draws=0).annual.iloc[0]
     tall = _run(record, min_threshold=ustar.CANOPY_FLOORS["tall"], draws=0).annual.iloc[0]
     assert abs(short["threshold"] - 0.06) <= 0.03
