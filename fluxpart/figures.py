@@ -90,6 +90,9 @@ _RC = {
     "legend.frameon": False,
     "image.interpolation": "nearest",
     "hatch.linewidth": 0.6,
+    # a fixed title height: matplotlib skips the costly search for tick labels under titles
+    "axes.titley": 1.0,
+    "axes.titlepad": 4.0,
 }
 
 
@@ -571,9 +574,9 @@ def figure_fill_quality(drawing, written, interval) -> Figure:
     run = _gap_runs(categories, series.index, interval)
     longest = (f"the longest run without a measurement is {run[0]:.1f} days from "
                f"{run[1]:%Y-%m-%d %H:%M}" if run else "every record was measured")
-    caption = ("Look for long dark bands (C and unfilled) and where they fall: gaps at the "
-               f"peak of the season weigh most on the budget; {longest}. Codes: measured, "
-               "A/B/C filled with decreasing confidence, unfilled.")
+    caption = ("Look for long bands of B, C (filled with decreasing confidence after A) and "
+               "unfilled records and where they fall, since gaps at the peak of the season "
+               f"weigh most on the budget; {longest}.")
     return Figure("fill_quality.png", drawing.png(figure), "Gaps and fill quality", caption)
 
 
@@ -1139,7 +1142,7 @@ def figure_light_response(drawing, written) -> Figure:
         end = pd.Timestamp(window["window_end"]) - pd.Timedelta(minutes=1)
         state, why = states.loc[position, "state"], states.loc[position, "why"]
         flagged = state != "accepted"
-        why = textwrap.shorten(str(why), width=48, placeholder=" …")
+        why = textwrap.shorten(str(why), width=36, placeholder=" …")
         axis.set_title(f"{start:%d %b} – {end:%d %b %Y}: {state}" + (f" ({why})" if why else ""),
                        loc="left", color=_VERMILLION if flagged else _BLACK, fontsize=8.5)
         if flagged:

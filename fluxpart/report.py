@@ -325,7 +325,7 @@ def _source_check(note: str) -> str:
         return "our choice (reason in the note)"
     if "common practice" in note:
         return "common practice"
-    if re.search(r"et al\.|\(\d{4}\)|\d{4}\)", note):
+    if re.search(r"et al\.|\b(19|20)\d{2}\b", note):
         return "cited"
     return "–"
 
@@ -854,6 +854,6 @@ def command_report(args) -> int:
     with Progress(len(FIGURES) + 1, "fluxpart report", enabled=enabled) as progress:
         path = build_report(args.directory, getattr(args, "out", None),
                             progress=progress.advance)
-    print(f"Wrote {path} (figures beside it)")
+    print(f"Wrote {path} (figures beside it; open it in any browser, no network needed)")
     print(f"Caution: {CAUTION}")
     return 0

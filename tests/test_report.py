@@ -252,6 +252,17 @@ def test_every_figure_is_a_valid_non_blank_png(folder):
         assert base64.b64decode(encoded) == data, f"{name} embedded differs from the file"
 
 
+def test_each_figure_has_a_one_sentence_caption(folder):
+    """Every figure has a title and a caption of one sentence (what to look for)."""
+    captions = re.findall(r"<figcaption>(.*?)</figcaption>", folder["text"], re.S)
+    assert len(captions) == len(FIGURES)
+    for caption in captions:
+        text = html.unescape(caption).replace("et al.", "et al")
+        assert text.endswith(".") and len(text) > 60, caption
+        text = re.sub(r"\(run's estimate: .*?\)", "", text)  # the run's own clock words
+        assert not re.search(r"\.\s+[A-Z][a-z]", text), caption
+
+
 def test_figures_carry_no_timestamp_or_software_tag(folder):
     """No tIME chunk and no text chunk: the PNG bytes depend only on the drawing."""
     for name in FIGURES:
