@@ -173,6 +173,14 @@ class Config:
         (2010) weight by the flux uncertainty (m); the fit falls back to unweighted
         (column ``weighted`` of the daytime parameter table) where too few pairs
         give a model. ``"none"``: unweighted.
+    daytime_night_in_fit : bool
+        Also fit each window's measured night NEE (as Rg = 0 records) in the daytime
+        light-response fit; false (default): the published method fits daytime data
+        only (Lasslop et al. 2010 (m)) and keeps the two partitionings independent
+        except for the night-Rref refit above. True lets the night data pull the
+        intercept that a rectangular hyperbola overestimates when the true light
+        response bends more sharply, at the price of sharing the night data's
+        biases (u* filtering) with the nighttime method (figures in DEVELOPERS.md).
     random_error_draws : int
         Monte Carlo realisations of the random error of NEE summed per year; 500,
         our choice (the standard deviation of the sum is then known to about 3 %).
@@ -238,6 +246,7 @@ class Config:
     daytime_consistency_z: float = 1.96
     daytime_night_min_points: int = 5
     daytime_weighting: str = "random_error"
+    daytime_night_in_fit: bool = False
     random_error_draws: int = 500
     random_error_rg_tolerance: float = 35.0
     random_error_tair_tolerance: float = 3.0
@@ -368,6 +377,9 @@ def _check(config: Config) -> None:
             or not all(_is_number(v) for v in low_high) or not 0 < low_high[0] < low_high[1]):
         raise ConfigError(f"[processing] e0_bounds = {low_high!r}: expected [low, high] in K "
                           "with 0 < low < high")
+    if not isinstance(config.daytime_night_in_fit, bool):
+        raise ConfigError(f"[processing] daytime_night_in_fit = {config.daytime_night_in_fit!r}: "
+                          "expected true or false")
     widths = config.daytime_e0_window_days
     if (not isinstance(widths, tuple) or not widths
             or not all(_is_number(w) and 0 < w < float("inf") for w in widths)

@@ -338,7 +338,9 @@ def test_e0_from_night_data_recovers_planted_value(season_own_e0):
     assert set(windows.e0_source) <= {"window", "widened", "interpolated"}
     own = windows[windows.e0_source != "interpolated"]
     assert len(own) > 0.8 * len(windows)
-    assert (own.e0_window_days <= 16).all() and (own.e0_points >= 6).all()
+    rules = REFERENCE["e0_windows"]
+    assert own.e0_window_days.isin(rules["widths_days"]).all() and (own.e0_points >= 6).all()
+    assert own.e0.between(rules["e0_low"], rules["e0_high"], inclusive="neither").all()
     assert (own.e0_se <= 0.5 * own.e0).all()
     assert np.nansum(result.reco) == pytest.approx(np.sum(record["reco_true"]), rel=0.05)
     assert np.nansum(result.gpp) == pytest.approx(np.sum(record["gpp_true"]), rel=0.05)
@@ -479,3 +481,15 @@ def test_fluxes_between_windows_stay_within_neighbouring_curves():
               for row in (before, after)]
     low, high = np.minimum(*curves), np.maximum(*curves)
     assert np.all(result.gpp[gap] >= low - 1e-12) and np.all(result.gpp[gap] <= high + 1e-12)
+
+
+def test_daytime_settings_are_checked_in_config():
+    """Bad daytime settings in [processing] give one ConfigError naming the setting."""
+    from fluxpart.config import Config
+
+    assert Config().daytime_e0_window_days == (4.0, 8.0, 16.0)
+    for key, value in (("daytime_e0_window_days", [8, 4]), ("daytime_weighting", "sigma"),
+                       ("daytime_consistency_z", 0), ("daytime_night_min_points", 0),
+                       ("daytime_night_in_fit", "yes")):
+        with pytest.raises(ConfigError, match=rf"\[processing\] {key}"):
+            Config.from_mapping({key: value})
