@@ -336,7 +336,8 @@ _PARAMETERS = {
     "e0_window_days": ("d", "width of the night window centred on the daytime window that "
                        "gave E0 (empty where interpolated)"),
     "e0_source": ("", "E0 from the window's own night data (window), a wider night window "
-                  "(widened), interpolated between windows, or supplied"),
+                  "(widened), interpolated between windows, the e0_fallback setting (fallback), or "
+                  "supplied by the caller"),
     "rref_night": (FLUX, "Rref of the window's night NEE with its E0, least squares (CO2)"),
     "rref_night_se": (FLUX, "standard error of the night Rref (CO2)"),
     "weighted": ("1", "fit weighted by the random error of NEE"),
@@ -503,8 +504,8 @@ def file_metadata(site, interval_minutes: int | None) -> dict:
     }
 
 
-def with_metadata(frame: pd.DataFrame, table: str, facts: dict) -> pd.DataFrame:
-    """Return a shallow copy of `frame` whose ``attrs`` describe it.
+def with_metadata(frame, table: str, facts: dict):
+    """Return a shallow copy of `frame` (a DataFrame or Series) whose ``attrs`` describe it.
 
     ``attrs`` gets `facts` (from :func:`file_metadata`), the table name, and
     ``units`` and ``descriptions`` of every column and of the index, as
@@ -512,7 +513,8 @@ def with_metadata(frame: pd.DataFrame, table: str, facts: dict) -> pd.DataFrame:
     writer stores the same facts in the file.
     """
     out = frame.copy(deep=False)
-    columns = [*([frame.index.name] if frame.index.name else []), *map(str, frame.columns)]
+    names = frame.columns if isinstance(frame, pd.DataFrame) else [frame.name]
+    columns = [*([frame.index.name] if frame.index.name else []), *map(str, names)]
     described = units_for_table(table, columns)
     out.attrs.update({**facts, "table": table,
                       "units": {c: unit for c, (unit, _) in described.items()},

@@ -140,3 +140,15 @@ def test_load_puts_units_into_attrs(written_demo):
     assert loaded.timeseries["nee_fill_quality"].dtype == "category"
     # the in-memory result carries the same attrs as the loaded one
     assert result.annual.attrs["units"]["nee"] == "g m-2"
+
+
+def test_every_file_of_a_result_names_the_site(written_demo):
+    """Issue 15: every Parquet file of a result folder carries the site and the interval."""
+    result, folder = written_demo
+    files = sorted(Path(folder).glob("*.parquet"))
+    assert len(files) >= 8
+    for path in files:
+        info = json.loads(pq.ParquetFile(path).metadata.metadata[b"fluxpart"])
+        assert info["site"]["name"] == result.site.name, path.name
+        assert info["interval_minutes"] == 30, path.name
+        assert info["columns"], path.name
