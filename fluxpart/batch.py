@@ -53,7 +53,9 @@ import pyarrow.parquet as pq
 from ._validate import read_toml
 from .config import Config, suggest_key
 from .errors import ConfigError, FluxpartError, InputFileError
+from .fingerprint import code_fingerprint
 from .manifest import CAUTION, MANIFEST_FORMAT, library_versions, read_manifest
+from .resultdir import check_folder
 from .schema import units_for_table
 from .store import atomic_write_bytes, file_sha256, read_table, write_table
 
@@ -344,15 +346,15 @@ def _stale_reason(config, directory) -> str | None:
         return "settings changed"
     if manifest.get("versions") != library_versions():
         return "library versions changed"
+    if (manifest.get("code") or {}).get("sha256") != code_fingerprint()["sha256"]:
+        return "fluxpart code changed"
     tables = manifest.get("tables")
     if not isinstance(tables, dict) or "annual" not in tables:
         return "manifest lists no tables"
-    for entry in tables.values():
-        table_path = directory / str(entry.get("file", ""))
-        if not table_path.is_file():
-            return f"table {entry.get('file')!r} missing"
-        if file_sha256(table_path) != entry.get("sha256"):
-            return f"table {entry.get('file')!r} changed"
+    for problem in check_folder(directory, manifest):
+        if problem.kind in ("hash", "missing"):
+            return f"table {problem.file!r} {'changed' if problem.kind == 'hash' else 'missing'}"
+        return f"folder does not match its manifest ({problem.describe()})"
     return None
 
 
@@ -370,10 +372,10 @@ def is_up_to_date(config, directory) -> bool:
     -------
     bool
         True when the manifest records the same site config SHA-256, the same
-        input file SHA-256, the same resolved settings (:class:`fluxpart.Config`)
-        and the same library versions as now, and every table file it lists is
-        present with its recorded SHA-256. Rerunning such a site would give the
-        same bytes.
+        input file SHA-256, the same resolved settings (:class:`fluxpart.Config`),
+        the same library versions and code fingerprint as now, and the folder
+        matches its manifest (seal, every table's SHA-256, no extra file).
+        Rerunning such a site would give the same tables.
     """
     return _stale_reason(config, directory) is None
 

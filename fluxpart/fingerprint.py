@@ -77,8 +77,9 @@ def _blas_libraries() -> list[dict]:
         from threadpoolctl import threadpool_info
     except ImportError:  # pragma: no cover - threadpoolctl is a core dependency
         return []
-    keys = ("user_api", "internal_api", "prefix", "version", "architecture",
-            "threading_layer", "num_threads")
+    # The thread count is left out: it differs between the command line and batch
+    # workers of one machine (Dask limits it), which would make their manifests differ.
+    keys = ("user_api", "internal_api", "prefix", "version", "architecture", "threading_layer")
     found = [{key: info.get(key) for key in keys} for info in threadpool_info()]
     return sorted(found, key=lambda entry: (str(entry["user_api"]), str(entry["prefix"])))
 
@@ -95,7 +96,8 @@ def platform_record() -> dict:
         targets from NumPy's build configuration), ``numpy_blas`` (the BLAS NumPy
         was built against, with its version) and ``blas`` (every BLAS/OpenMP pool
         loaded, from ``threadpoolctl``: implementation, version, CPU kernel
-        architecture and thread count).
+        architecture and threading layer; not the thread count, which batch
+        workers limit).
     """
     import sys
 

@@ -260,6 +260,10 @@ def run_log_record(directory: Path, provenance: dict) -> dict:
         user = getpass.getuser()
     except (KeyError, OSError):
         user = "unknown"
+    try:
+        working_directory = os.getcwd()
+    except OSError:                      # e.g. a worker process whose folder was removed
+        working_directory = "unknown"
     inputs = {}
     for key in ("input", "site_config"):
         entry = provenance.get(key)
@@ -269,7 +273,7 @@ def run_log_record(directory: Path, provenance: dict) -> dict:
         "written_utc": datetime.now(timezone.utc).isoformat(timespec="seconds"),
         "user": user,
         "host": socket.gethostname(),
-        "working_directory": os.getcwd(),
+        "working_directory": working_directory,
         "command_line": [sys.executable, *sys.argv],
         "process_id": os.getpid(),
         "result_folder": str(directory),
@@ -365,9 +369,10 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
             _swap_in(staging, directory)
         except OSError as error:
             shutil.rmtree(staging, ignore_errors=True)
+            where = f" ({error.filename})" if error.filename else ""
             raise OutputError(f"writing the result folder {str(directory)!r} failed: "
-                              f"{error.strerror or error}; the earlier result, if any, is "
-                              "unchanged") from None
+                              f"{error.strerror or error}{where}; the earlier result, if any, "
+                              "is unchanged") from None
         except BaseException:
             shutil.rmtree(staging, ignore_errors=True)
             raise
@@ -398,7 +403,7 @@ class FolderProblem:
 
     def describe(self) -> str:
         """One line naming the file and the problem."""
-        return f"{self.file}: {self.detail}"
+        return f"{self.file} {self.detail}"
 
 
 def check_folder(directory, manifest: dict) -> list[FolderProblem]:
@@ -418,7 +423,7 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
                                       "(its seal does not match its content)"))
     if manifest.get("format") != MANIFEST_FORMAT:
         problems.append(FolderProblem(MANIFEST_FILE, "format",
-                                      f"format {manifest.get('format')!r}; this fluxpart reads "
+                                      f"has format {manifest.get('format')!r}; this fluxpart reads "
                                       f"{MANIFEST_FORMAT!r} (rerun to rewrite the folder)"))
     allowed_files, allowed_dirs = {MANIFEST_FILE}, set()
     unhashed = manifest.get("unhashed") if isinstance(manifest.get("unhashed"), dict) else {}
@@ -435,17 +440,17 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
         if not isinstance(file, str) or not file or Path(file).name != file \
                 or file in (MANIFEST_FILE, RUN_LOG):
             problems.append(FolderProblem(MANIFEST_FILE, "entry",
-                                          f"table {name!r} has no valid file name ({file!r})"))
+                                          f"gives table {name!r} no valid file name ({file!r})"))
             continue
         allowed_files.add(file)
         path = directory / file
         if not path.is_file():
-            problems.append(FolderProblem(file, "missing", "listed in the manifest but missing "
-                                          "from the folder"))
+            problems.append(FolderProblem(file, "missing", "is listed in the manifest but "
+                                          "missing from the folder"))
             continue
         actual = file_sha256(path)
         if actual != entry.get("sha256"):
-            problems.append(FolderProblem(file, "hash", f"SHA-256 {actual} is not the "
+            problems.append(FolderProblem(file, "hash", f"has SHA-256 {actual}, not the "
                                           f"{entry.get('sha256')} recorded in the manifest: "
                                           "the file changed after it was written"))
     for path in sorted(directory.iterdir()):

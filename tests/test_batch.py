@@ -250,7 +250,10 @@ def test_batch_is_byte_identical_to_fluxpart_run(towers, tmp_path, capsys):
         assert sorted(from_batch) == sorted(from_run)
         assert any(name.endswith(".parquet") for name in from_run)
         for name in from_run:
+            if name == "run-log.json":        # who/when/where: the one file meant to differ
+                continue
             assert from_batch[name][0] == from_run[name][0], f"{key}/{name} differs"
+
         manifest = batch.read_manifest(out / key)
         for entry in manifest["tables"].values():
             # hashlib is the reference for the recorded SHA-256 of each table

@@ -1,0 +1,91 @@
+"""`fluxpart diff A B`: what differs between two result folders and how the budget moved.
+
+Exit statuses are those of the audit contract (DESIGN.md §4.1): 0 same, 1 differ, 2 error.
+The moved amounts are checked against plain arithmetic on the stored annual tables.
+"""
+
+import json
+import shutil
+
+import pytest
+from bundles import make_bundle
+
+from fluxpart.cli import main
+from fluxpart.diff import diff_folders
+from fluxpart.pipeline import process_site_config
+from fluxpart.store import read_table
+
+
+@pytest.fixture(scope="module")
+def folders(tmp_path_factory):
+    """Two results of one input: default settings, and a wider Rg tolerance of gap filling."""
+    root = tmp_path_factory.mktemp("diff")
+    first = process_site_config(make_bundle(root, name="a.toml")).write(root / "a")
+    second = process_site_config(make_bundle(root, name="b.toml", extra="rg_tolerance = 80.0\n")
+                                 ).write(root / "b")
+    return root, first, second
+
+
+def test_same_result_in_two_places_is_the_same(folders, tmp_path, capsys):
+    """A copy elsewhere (other relative paths, other run log) is the same: exit 0."""
+    _, first, _ = folders
+    copy = tmp_path / "nested" / "copy"
+    shutil.copytree(first, copy)
+    (copy / "run-log.json").write_text("{}")
+    assert main(["diff", str(first), str(copy)]) == 0
+    assert "same:" in capsys.readouterr().out
+
+
+def test_setting_and_annual_moves_are_listed(folders, capsys):
+    """Another setting: the site config hash, the setting and each moved annual number."""
+    _, first, second = folders
+    report = diff_folders(first, second)
+    assert report.exit_code == 1
+    named = {(section, name) for section, name, _, _ in report.items}
+    assert ("setting", "rg_tolerance") in named
+    assert ("input", "site config SHA-256") in named
+    assert ("input", "input file SHA-256") not in named            # same input file
+    assert not any(section in ("version", "code", "platform") for section, _ in named)
+    a = read_table(first / "annual.parquet")
+    b = read_table(second / "annual.parquet")
+    year = a.index[0]
+    row = report.annual.loc[(year, "nee")]
+    assert row["first"] == a.loc[year, "nee"] and row["second"] == b.loc[year, "nee"]
+    assert row["change"] == pytest.approx(b.loc[year, "nee"] - a.loc[year, "nee"], rel=1e-12)
+    assert row["relative"] == pytest.approx(row["change"] / abs(a.loc[year, "nee"]), rel=1e-12)
+    assert main(["diff", str(first), str(second)]) == 1
+    out = capsys.readouterr().out
+    assert "setting rg_tolerance" in out and "first 50.0" in out and "second 80.0" in out
+
+
+def test_versions_code_and_platform_are_named(folders, tmp_path):
+    """Edited (and resealed) version, code fingerprint and CPU features show up by name."""
+    from fluxpart.manifest import manifest_seal
+
+    _, first, _ = folders
+    other = tmp_path / "other"
+    shutil.copytree(first, other)
+    path = other / "manifest.json"
+    manifest = json.loads(path.read_text())
+    manifest["versions"]["numpy"] = "0.0.1"
+    manifest["code"]["sha256"] = "0" * 64
+    manifest["platform"]["numpy_cpu_features"] = [
+        f for f in manifest["platform"]["numpy_cpu_features"] if f != "AVX2"] + ["NEON"]
+    manifest["seal"] = manifest_seal(manifest)
+    path.write_text(json.dumps(manifest, indent=2))
+    report = diff_folders(first, other)
+    named = {(section, name.split(" ")[0]) for section, name, _, _ in report.items}
+    assert {("version", "numpy"), ("code", "fingerprint"),
+            ("platform", "numpy_cpu_features")} <= named
+    assert report.annual.empty and report.exit_code == 1
+
+
+def test_a_folder_that_does_not_match_its_manifest_is_an_error(folders, tmp_path, capsys):
+    """diff refuses a tampered folder (exit 2, the file named) and a missing one."""
+    _, first, _ = folders
+    other = tmp_path / "other"
+    shutil.copytree(first, other)
+    (other / "extra.parquet").write_bytes(b"")
+    assert main(["diff", str(first), str(other)]) == 2
+    assert "extra.parquet" in capsys.readouterr().err
+    assert main(["diff", str(first), str(tmp_path / "nowhere")]) == 2

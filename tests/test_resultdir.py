@@ -1,0 +1,242 @@
+"""A result folder is replaced as a whole or not at all, by one writer at a time.
+
+The kill test sends SIGKILL (POSIX) to real ``fluxpart run`` processes at varied moments
+of writing into a folder that holds an earlier result; after every kill the folder must
+be the old complete result or the new complete one, each matching its manifest. The
+reference for "complete" is the byte content of a run that was not interrupted
+(SHA-256 from Python's ``hashlib`` via the manifest).
+"""
+
+import dataclasses
+import os
+import signal
+import subprocess
+import sys
+import threading
+import time
+from pathlib import Path
+
+import pandas as pd
+import pytest
+from bundles import make_bundle
+
+import fluxpart
+from fluxpart import resultdir
+from fluxpart.errors import InputFileError, OutputError
+from fluxpart.pipeline import process_site_config
+from fluxpart.resultdir import clean_leftovers, folder_lock, read_folder
+
+REPOSITORY = Path(__file__).resolve().parent.parent
+
+
+def _run(config: Path, out: Path) -> subprocess.Popen:
+    env = {**os.environ, "PYTHONPATH": os.pathsep.join(
+        [str(REPOSITORY), *filter(None, [os.environ.get("PYTHONPATH")])])}
+    return subprocess.Popen([sys.executable, "-m", "fluxpart", "run", str(config), "--out",
+                             str(out), "--quiet"], env=env, stdout=subprocess.DEVNULL,
+                            stderr=subprocess.PIPE)
+
+
+def _leftovers(out: Path) -> list[str]:
+    return sorted(p.name for p in out.parent.iterdir()
+                  if p.name.startswith(f".{out.name}.") and p.is_dir())
+
+
+def _table_hashes(manifest: dict) -> dict:
+    return {name: entry["sha256"] for name, entry in manifest["tables"].items()}
+
+
+@pytest.fixture(scope="module")
+def two_configs(tmp_path_factory):
+    """Two site configs of one input that give different results, and their reference hashes."""
+    root = tmp_path_factory.mktemp("kill")
+    configs = {draws: make_bundle(root, records=24 * 2 * 30, name=f"site{draws}.toml",
+                                  draws=draws)
+               for draws in (30, 31)}
+    references = {}
+    for draws, config in configs.items():
+        folder = process_site_config(config).write(root / f"reference{draws}")
+        references[draws] = _table_hashes(read_folder(folder)[0])
+    assert references[30] != references[31]
+    return root, configs, references
+
+
+def _check_complete(out: Path, references: dict) -> int:
+    """The folder matches its manifest and is byte for byte one of the references."""
+    manifest, _ = read_folder(out)
+    draws = manifest["config"]["random_error_draws"]
+    assert _table_hashes(manifest) == references[draws]
+    return draws
+
+
+def test_sigkill_while_writing_leaves_the_old_or_the_new_result(two_configs, tmp_path):
+    """SIGKILL at varied moments of writing: the folder is always one complete result."""
+    root, configs, references = two_configs
+    out = tmp_path / "out"
+    assert _run(configs[30], out).wait(timeout=120) == 0
+    current = _check_complete(out, references)
+    # (what to wait for, extra delay [s]): the staging folder appearing, its manifest
+    # appearing (the moment just before the swap), or nothing (killed while computing)
+    moments = [("staging", 0.0), ("staging", 0.004), ("staging", 0.015), ("staging", 0.05),
+               ("manifest", 0.0), ("manifest", 0.001), ("manifest", 0.005), ("start", 0.5)]
+    seen_staging, outcomes = 0, []
+    for wait_for, delay in moments:
+        other = 31 if current == 30 else 30
+        process = _run(configs[other], out)
+        deadline = time.monotonic() + 120
+        seen = False
+        while process.poll() is None and time.monotonic() < deadline and wait_for != "start":
+            staging = [p for p in out.parent.glob(f".{out.name}.staging-*") if p.is_dir()]
+            if staging and (wait_for == "staging" or any((p / "manifest.json").exists()
+                                                         for p in staging)):
+                seen = True
+                break
+            time.sleep(0.0005)
+        time.sleep(delay)
+        process.send_signal(signal.SIGKILL)
+        process.wait(timeout=30)
+        seen_staging += seen
+        now = _check_complete(out, references)
+        assert now in (current, other)
+        outcomes.append((wait_for, delay, process.returncode, "new" if now == other else "old"))
+        current = now
+    assert seen_staging >= 5, outcomes          # the kills did land while writing
+    # the next run cleans what the killed ones left beside the folder
+    assert _run(configs[30], out).wait(timeout=120) == 0
+    assert _check_complete(out, references) == 30
+    assert _leftovers(out) == []
+
+
+def test_two_writers_at_once_give_one_complete_result(two_configs, tmp_path):
+    """Two `fluxpart run` into one folder at once: both succeed, one whole result remains."""
+    root, configs, references = two_configs
+    out = tmp_path / "out"
+    first, second = _run(configs[30], out), _run(configs[31], out)
+    assert first.wait(timeout=180) == 0, first.stderr.read()
+    assert second.wait(timeout=180) == 0, second.stderr.read()
+    _check_complete(out, references)
+    assert _leftovers(out) == []
+
+
+@pytest.fixture(scope="module")
+def short_result(tmp_path_factory):
+    root = tmp_path_factory.mktemp("short")
+    return process_site_config(make_bundle(root))
+
+
+def test_second_writer_waits_says_so_or_gives_up(short_result, tmp_path):
+    """A held lock: refused at once with timeout 0, waited for (with a note) otherwise."""
+    out = tmp_path / "out"
+    with folder_lock(out):
+        with pytest.raises(OutputError, match="being written by another fluxpart process"):
+            resultdir.write_folder(out, {}, site={}, config={}, seed=0, provenance={},
+                                   lock_timeout=0)
+        said = []
+        with pytest.raises(OutputError, match="gave up after 0.2 s"):
+            resultdir.write_folder(
+                out, short_result.tables(), site=short_result.site.to_dict(),
+                config=short_result.config.to_dict(), seed=0, provenance={},
+                lock_timeout=0.2, notify=said.append)
+        assert said and "waiting" in said[0]
+    assert not out.exists() and _leftovers(out) == []
+
+    holder = folder_lock(out)
+    holder.__enter__()
+    releaser = threading.Timer(0.5, holder.__exit__, args=(None, None, None))
+    releaser.start()
+    started = time.monotonic()
+    short_result.write(out, lock_timeout=60)
+    assert time.monotonic() - started >= 0.4
+    releaser.join()
+    pd.testing.assert_frame_equal(fluxpart.load(out).annual, short_result.annual,
+                                  check_dtype=False)
+
+
+def test_rerun_with_fewer_tables_leaves_no_stale_table(short_result, tmp_path):
+    """The folder is replaced whole: a table the new result lacks does not survive."""
+    out = short_result.write(tmp_path / "out")
+    assert (out / "parameters_daytime.parquet").exists()
+    fewer = dataclasses.replace(short_result, parameters={
+        k: v for k, v in short_result.parameters.items() if k != "daytime"})
+    fewer.write(out)
+    assert not (out / "parameters_daytime.parquet").exists()
+    assert "daytime" not in fluxpart.load(out).parameters
+
+
+def test_failed_write_keeps_the_old_result(short_result, tmp_path, monkeypatch):
+    """A write that fails half-way (disk full) leaves the earlier result and no staging."""
+    out = short_result.write(tmp_path / "out")
+    before = read_folder(out)[0]
+    calls = []
+
+    def failing(frame, path, units, name):
+        calls.append(name)
+        if len(calls) == 3:
+            raise OSError(28, "No space left on device")
+        return real(frame, path, units, name)
+
+    real = resultdir.write_table
+    monkeypatch.setattr(resultdir, "write_table", failing)
+    with pytest.raises(OutputError, match="No space left on device.*earlier result"):
+        short_result.write(out)
+    assert read_folder(out)[0] == before and _leftovers(out) == []
+
+
+def test_crash_between_the_two_renames_is_repaired(short_result, tmp_path, monkeypatch):
+    """Without an atomic exchange, a crash between the renames leaves the old result aside;
+    the next reader puts it back and the next writer cleans up."""
+    monkeypatch.setattr(resultdir, "_exchange", lambda a, b: False)
+    out = short_result.write(tmp_path / "out")
+    before = read_folder(out)[0]
+    out.rename(out.parent / f".{out.name}.retired-dead")            # the first rename
+    (out.parent / f".{out.name}.staging-dead").mkdir()               # a half-written new one
+    assert fluxpart.load(out).site == short_result.site              # repaired on read
+    assert read_folder(out)[0] == before and _leftovers(out) == []
+    short_result.write(out)                                          # the fallback swap works
+    assert read_folder(out)[0]["tables"] == before["tables"]
+    assert clean_leftovers(out) == []
+
+
+def test_out_that_is_a_file_or_a_foreign_folder_is_refused(short_result, tmp_path):
+    """A file, or a folder with other files and no manifest, is never replaced."""
+    target = tmp_path / "notes.txt"
+    target.write_text("keep me")
+    with pytest.raises(OutputError, match="exists and is not a folder"):
+        short_result.write(target)
+    assert target.read_text() == "keep me"
+    folder = tmp_path / "documents"
+    folder.mkdir()
+    (folder / "thesis.tex").write_text("keep me too")
+    with pytest.raises(OutputError, match="not a fluxpart result folder"):
+        short_result.write(folder)
+    assert (folder / "thesis.tex").read_text() == "keep me too"
+    assert _leftovers(target) == [] and _leftovers(folder) == []
+
+
+@pytest.mark.skipif(os.name != "posix" or os.geteuid() == 0,
+                    reason="needs POSIX permissions that apply (not root)")
+def test_unwritable_place_fails_cleanly(short_result, tmp_path):
+    locked = tmp_path / "locked"
+    locked.mkdir()
+    locked.chmod(0o500)
+    try:
+        with pytest.raises(OutputError):
+            short_result.write(locked / "out")
+    finally:
+        locked.chmod(0o700)
+
+
+def test_load_refuses_a_folder_that_does_not_match_its_manifest(short_result, tmp_path):
+    """An extra file is named; so is a table whose bytes changed."""
+    out = short_result.write(tmp_path / "out")
+    (out / "notes.txt").write_text("added later")
+    with pytest.raises(InputFileError, match="notes.txt is not listed in the manifest"):
+        fluxpart.load(out)
+    (out / "notes.txt").unlink()
+    (out / "report").mkdir()                      # report pages: a folder the manifest names
+    (out / "report" / "report.html").write_text("<html></html>")
+    fluxpart.load(out)
+    with open(out / "daily.parquet", "ab") as handle:
+        handle.write(b"\0")
+    with pytest.raises(InputFileError, match="daily.parquet has SHA-256"):
+        fluxpart.load(out)
