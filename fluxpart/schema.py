@@ -36,10 +36,12 @@ from .variables import VARIABLES
 __all__ = [
     "AUDIT_COLUMNS",
     "FILL_METHOD_LABELS",
+    "NOT_QUANTIFIED",
     "RANDOM_ERROR_MODEL_COLUMNS",
     "REASON_LABELS",
     "TIME_CONVENTION",
     "QUALITY_LABELS",
+    "NOT_QUANTIFIED",
     "UNCERTAINTY_COLUMNS",
     "as_codes",
     "as_labels",
@@ -137,25 +139,42 @@ _BUDGET = {
     "ustar_threshold": ("m s-1", "u* threshold applied in the year"),
 }
 
-#: Unit and description of the uncertainty and carbon-accounting columns of the
-#: annual table (:func:`fluxpart.uncertainty.uncertainty_budget`,
-#: :func:`fluxpart.uncertainty.carbon_accounting_units`).
+#: What the stated intervals do not contain (named in the column descriptions); the
+#: uncertainty module states the same list in the manifest.
+NOT_QUANTIFIED = (
+    "systematic measurement errors: energy-balance non-closure, advection and storage not "
+    "removed by the u* filter, footprint heterogeneity, gas-analyser calibration",
+    "model-structure error shared by both partitioning methods (both rest on a Lloyd–Taylor "
+    "temperature response)",
+    "errors of the meteorological drivers and of their gap filling",
+    "lateral carbon fluxes and harvest export (outside the tower's view)",
+)
+_NOT_COVERED = "not included: " + "; ".join(NOT_QUANTIFIED)
+_TOTAL_PARTS = {
+    "nee": "random, gap filling and u* threshold",
+    "gpp_nighttime": "random, gap filling, u* threshold, fitted parameters and partitioning",
+    "reco_nighttime": "u* threshold, fitted parameters (E0, Rref) and partitioning",
+    "gpp_daytime": "u* threshold, fitted parameters (Rref of the windows) and partitioning",
+    "reco_daytime": "u* threshold, fitted parameters (Rref of the windows) and partitioning",
+}
+
+#: Unit and description of the uncertainty and carbon-accounting columns of the budget
+#: tables (:mod:`fluxpart.uncertainty`). Every ``_uncertainty_`` and ``_sigma`` column is
+#: one standard deviation, in grams of carbon per square metre.
 UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
-    "nee_uncertainty_random": (CARBON, "random error of the annual NEE sum (carbon): standard "
-                               "deviation of the Monte Carlo sums of Laplace record errors"),
+    "nee_uncertainty_random": (CARBON, "1 sigma: random error of the NEE sum over the measured "
+                               "records (Laplace record errors, Monte Carlo per year, analytic "
+                               "per day and month), grams of carbon; filled records are in the "
+                               "gap-filling part"),
     "nee_uncertainty_random_percentile_2_5": (CARBON, "2.5th percentile of the Monte Carlo "
-                                              "random error of the annual NEE sum (carbon; add "
-                                              "to nee for the lower end of a 95 % interval)"),
+                                              "random error of the annual NEE sum (measured "
+                                              "records), grams of carbon"),
     "nee_uncertainty_random_percentile_97_5": (CARBON, "97.5th percentile of the Monte Carlo "
-                                               "random error of the annual NEE sum (carbon; add "
-                                               "to nee for the upper end of a 95 % interval)"),
-    "nee_uncertainty_random_analytic": (CARBON, "random error of the annual NEE sum (carbon) "
-                                        "from the record variances, assuming independent "
-                                        "errors"),
-    "nee_uncertainty_ustar": (CARBON, "half the range of annual NEE (carbon) over the u* "
-                              "threshold scenarios"),
-    "nee_uncertainty_total": (CARBON, "root sum of squares of the random and u* parts of NEE "
-                              "(carbon; systematic errors not included)"),
+                                               "random error of the annual NEE sum (measured "
+                                               "records), grams of carbon"),
+    "nee_uncertainty_random_analytic": (CARBON, "random error of the annual NEE sum over the "
+                                        "measured records from their variances (independent "
+                                        "errors), grams of carbon"),
     "nee_uncertainty_gapfill": (CARBON, "1 sigma of the NEE sum (carbon) from gap filling, "
                                 "scored on artificial gaps of the site's own gap lengths: "
                                 "independent and within-gap correlated parts plus the systematic "
@@ -163,34 +182,52 @@ UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
     "nee_uncertainty_gapfill_bias": (CARBON, "systematic gap-filling bias of the NEE sum "
                                      "(carbon) on artificial gaps (fill minus measured; not "
                                      "subtracted from nee, counted in nee_uncertainty_gapfill)"),
-    "gpp_nighttime_uncertainty_random": (CARBON, "random error of nighttime GPP (carbon) = "
-                                         "random error of NEE (GPP = Reco - NEE)"),
-    "gpp_uncertainty_partitioning": (CARBON, "half the absolute difference of daytime and "
-                                     "nighttime annual GPP (carbon)"),
-    "reco_uncertainty_partitioning": (CARBON, "half the absolute difference of daytime and "
-                                      "nighttime annual Reco (carbon)"),
+    "gpp_nighttime_uncertainty_random": (CARBON, "1 sigma: random error of nighttime GPP = "
+                                         "random error of NEE (GPP = Reco - NEE), grams of "
+                                         "carbon"),
+    "gpp_uncertainty_partitioning": (CARBON, "1 sigma: structural error of GPP (carbon) "
+                                     "estimated as |daytime - nighttime| / sqrt(2); in the "
+                                     "totals of both methods"),
+    "reco_uncertainty_temperature_driver": (CARBON, "1 sigma: structural error of Reco and GPP "
+                                            "(carbon) from the choice of respiration "
+                                            "temperature: |nighttime Reco with the other "
+                                            "temperature - nighttime Reco| x sqrt(w), w the "
+                                            "weight the night data give the other temperature "
+                                            "(BIC); in the totals of all partitioned fluxes "
+                                            "(NaN without soil temperature)"),
+    "reco_uncertainty_partitioning": (CARBON, "1 sigma: structural error of Reco (carbon) "
+                                      "estimated as |daytime - nighttime| / sqrt(2); in the "
+                                      "totals of both methods"),
     "uncertainty_parts_missing": ("", "parts of the budget that could not be estimated this "
-                                  "year (left out of the totals)"),
+                                  "year (left out of the totals and intervals)"),
     "net_uptake_t_co2_per_ha": (METADATA_TONNES_PER_HECTARE, "net CO2 uptake in the year in "
                                 "tonnes of CO2 per hectare, positive = uptake "
                                 "(= -NEE x 44.009/12.011 x 0.01)"),
-    "net_uptake_t_co2_per_ha_uncertainty": (METADATA_TONNES_PER_HECTARE, "total uncertainty of "
-                                            "the net uptake, tonnes of CO2 per hectare "
-                                            "(nee_uncertainty_total converted)"),
-    "net_uptake_t_co2_per_ha_uncertainty_random": (METADATA_TONNES_PER_HECTARE, "random part of "
-                                                   "the uncertainty of the net uptake, tonnes "
-                                                   "of CO2 per hectare"),
+    "net_uptake_t_co2_per_ha_uncertainty": (METADATA_TONNES_PER_HECTARE, "1 sigma: total "
+                                            "uncertainty of the net uptake, tonnes of CO2 per "
+                                            "hectare (nee_uncertainty_total converted)"),
+    "net_uptake_t_co2_per_ha_uncertainty_random": (METADATA_TONNES_PER_HECTARE, "1 sigma: "
+                                                   "random part of the uncertainty of the net "
+                                                   "uptake, tonnes of CO2 per hectare"),
 }
+for _flux in _FLUXES:
+    UNCERTAINTY_COLUMNS[f"{_flux}_uncertainty_ustar"] = (
+        CARBON, f"1 sigma: u* threshold part of {_flux} (carbon): range over the u* scenario "
+        "runs / span of their standard-normal quantiles")
+    UNCERTAINTY_COLUMNS[f"{_flux}_uncertainty_total"] = (
+        CARBON, f"1 sigma: root sum of squares of the parts of {_flux} (carbon; "
+        f"{_TOTAL_PARTS[_flux]}); {_NOT_COVERED}")
+    UNCERTAINTY_COLUMNS[f"{_flux}_sigma"] = (
+        CARBON, f"1 sigma: total uncertainty of the {_flux} sum of the period (carbon; "
+        f"{_TOTAL_PARTS[_flux]}); {_NOT_COVERED}")
+    for _end, _sign, _word in (("low", "-", "lower"), ("high", "+", "upper")):
+        UNCERTAINTY_COLUMNS[f"{_flux}_ci95_{_end}"] = (
+            CARBON, f"{_word} end of the stated 95 % interval of the annual {_flux} sum "
+            f"(carbon; sum {_sign} 1.96 x {_flux}_uncertainty_total); {_NOT_COVERED}")
 for _flux in _FLUXES[1:]:
     UNCERTAINTY_COLUMNS[f"{_flux}_uncertainty_parameters"] = (
-        CARBON, f"1 sigma of {_flux} (carbon) from the fitted parameters of its method")
-    UNCERTAINTY_COLUMNS[f"{_flux}_uncertainty_ustar"] = (
-        CARBON, f"half the range of annual {_flux} (carbon) over the u* threshold scenarios")
-    UNCERTAINTY_COLUMNS[f"{_flux}_uncertainty_total"] = (
-        CARBON, f"root sum of squares of the parts of {_flux} (carbon): "
-        + ("random, u* and partitioning" if _flux == "gpp_nighttime" else
-           "u* and partitioning (no random part: a model output)"))
-del _flux
+        CARBON, f"1 sigma: fitted-parameter part of {_flux} (carbon)")
+del _flux, _end, _sign, _word
 
 #: Unit and description of the random-error model tables
 #: (:class:`fluxpart.uncertainty.RandomErrorModel`).

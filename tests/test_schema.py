@@ -171,3 +171,20 @@ def test_units_for_table_covers_a_real_annual_table(written_demo):
     described = units_for_table("annual", result.annual.columns)
     assert not [c for c, (u, d) in described.items() if not d]
     assert all(re.fullmatch(r"[\w .\-/^]*", unit) for unit, _ in described.values())
+
+
+def test_catalogue_covers_the_uncertainty_columns():
+    """Every column the uncertainty module documents is in the catalogue with the UDUNITS-2
+    form of its unit, and both name the same unquantified parts (a guard against drift
+    until the module imports its descriptions from the catalogue)."""
+    from fluxpart import uncertainty
+
+    for name, (unit, _) in getattr(uncertainty, "ANNUAL_COLUMNS", {}).items():
+        assert describe("annual", name)[0] == udunits(unit), name
+        assert describe("annual", name)[1], name
+    for name, (unit, _) in getattr(uncertainty, "MODEL_COLUMNS", {}).items():
+        assert describe("parameters_random_error_model", name)[0] == udunits(unit), name
+    if hasattr(uncertainty, "NOT_QUANTIFIED"):
+        assert tuple(uncertainty.NOT_QUANTIFIED) == schema.NOT_QUANTIFIED
+    for part in schema.NOT_QUANTIFIED:
+        assert part in describe("annual", "nee_ci95_high")[1]
