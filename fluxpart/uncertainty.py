@@ -67,6 +67,7 @@ from .errors import (
     MissingColumnError,
     SpacingError,
 )
+from .schema import NOT_QUANTIFIED
 
 __all__ = [
     "ANNUAL_COLUMNS",
@@ -129,14 +130,6 @@ _GAP_MIN_RECORDS = 50
 #: Confidence level of the stated intervals (DESIGN.md §4.1).
 CONFIDENCE = 0.95
 #: What the stated intervals do not contain (column descriptions, manifest, README).
-NOT_QUANTIFIED = (
-    "systematic measurement errors: energy-balance non-closure, advection and storage not "
-    "removed by the u* filter, footprint heterogeneity, gas-analyser calibration",
-    "model-structure error shared by both partitioning methods (both rest on a Lloyd–Taylor "
-    "temperature response)",
-    "errors of the meteorological drivers and of their gap filling",
-    "lateral carbon fluxes and harvest export (outside the tower's view)",
-)
 _FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
 
 _CARBON = "g C m-2"
