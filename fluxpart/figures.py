@@ -674,7 +674,7 @@ def clock_sentence(manifest: dict) -> str:
     if shift is not None:
         spread = clock.get("spread_minutes")
         months = clock.get("months_used")
-        parts.append(f"estimated shift {shift:+.0f} min"
+        parts.append(f"estimated shift {round(shift) + 0.0:+.0f} min"
                      + (f" ± {float(spread):.0f}" if isinstance(spread, (int, float)) else "")
                      + (f" over {int(months)} months" if isinstance(months, int) else ""))
     problems = clock.get("problems") or []
@@ -738,8 +738,7 @@ def figure_clock(drawing, written, interval) -> Figure:
             axis.set_ylabel("[W m-2]")
         if position >= len(axes) - ncols:
             axis.set_xlabel("Time of day [h]", fontsize=8)
-    handles, labels = axes[0].get_legend_handles_labels()
-    figure.legend(handles, labels, loc="upper right", ncols=2, fontsize=8)
+    axes[-1].legend(loc="upper right", fontsize=7)
     sentence = clock_sentence(written.manifest)
     figure.suptitle(f"Clock check: {sentence}", x=0.06, ha="left", fontsize=10.5)
     missing = "" if has_potential else " (no potential radiation column: measured Rg only)"

@@ -254,14 +254,17 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                       f"<tbody>{''.join(flux_rows)}</tbody></table>")
         facts = []
         if _finite(row.get("share_measured")):
-            filled = 1.0 - float(row["share_measured"])
-            parts = [f"{name} {100 * float(row[column]):.1f} %"
+            unfilled = float(row["share_unfilled"]) if _finite(row.get("share_unfilled")) else 0.0
+            filled = 1.0 - float(row["share_measured"]) - unfilled
+            parts = [f"quality {name} {100 * float(row[column]):.1f} %"
                      for name, column in (("A", "share_filled_a"), ("B", "share_filled_b"),
-                                          ("C", "share_filled_c"), ("unfilled", "share_unfilled"))
+                                          ("C", "share_filled_c"))
                      if _finite(row.get(column))]
             facts.append(f"<li><strong>Gap-filled:</strong> "
                          f"{_number(100 * filled, 1, 'share_gap_filled_percent', label, '%')} of "
-                         f"the records ({', '.join(parts)})"
+                         f"the records ({', '.join(parts)}); measured "
+                         f"{100 * float(row['share_measured']):.1f} %, left unfilled "
+                         f"{100 * unfilled:.1f} %"
                          + (f"; {100 * float(row['nee_share_from_filled']):.0f} % of the sum of "
                             "|NEE| comes from filled records"
                             if _finite(row.get("nee_share_from_filled")) else "") + ".</li>")

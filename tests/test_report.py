@@ -471,7 +471,9 @@ def test_summary_numbers_equal_the_annual_table(which, request):
         decimals = len(printed.split(".")[1]) if "." in printed else 0
         assert abs(float(printed) - annual.loc[2021, column]) <= 0.5 * 10.0 ** -decimals + 1e-9
     filled = shown[("share_gap_filled_percent", 2021)][0]
-    assert filled == pytest.approx(100 * (1 - annual.loc[2021, "share_measured"]), abs=1e-9)
+    # gap-filled = neither measured nor left unfilled
+    expected = 1 - annual.loc[2021, "share_measured"] - annual.loc[2021, "share_unfilled"]
+    assert filled == pytest.approx(100 * expected, abs=1e-9)
     if "methods_agree" in annual.columns:
         assert shown[("methods_agree", 2021)][0] == int(annual.loc[2021, "methods_agree"])
     # without a 95 % interval the page says what its ± is instead
