@@ -453,6 +453,30 @@ def _daylight_saving(used: pd.DataFrame):
     return base, sorted(high_months)
 
 
+def _shifted_run(used: pd.DataFrame, threshold: float):
+    """First and last month and size of a run of 3+ consecutive months shifted alike."""
+    peak = used["shift_minutes"].to_numpy()
+    edge = used["edge_shift_minutes"].to_numpy()
+    with np.errstate(invalid="ignore"):
+        off = ((np.abs(peak) >= threshold) & (np.abs(edge) >= threshold)
+               & (np.sign(peak) == np.sign(edge))
+               & (np.abs(peak - edge) <= np.maximum(10.0, 0.3 * np.abs(peak))))
+    months = used.index.to_period("M")
+    start = 0
+    for i in range(1, len(off) + 1):
+        consecutive = i < len(off) and (months[i] - months[i - 1]).n == 1
+        if i < len(off) and off[i] and off[start] and consecutive \
+                and np.sign(peak[i]) == np.sign(peak[start]):
+            continue
+        if off[start] and i - start >= 3:
+            values = peak[start:i]
+            size = float(np.median(values))
+            if np.ptp(values) <= 2.0 * max(10.0, 0.3 * abs(size)):
+                return used.index[start], used.index[i - 1], size
+        start = i
+    return None
+
+
 def _one_block(inside: set, outside: set) -> bool:
     """Whether some cyclic run of months of the year holds all of `inside`, none of `outside`."""
     for start in range(1, 13):
@@ -606,6 +630,20 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
                 f"but its rise and fall say {edge_median:+.0f} min (spread {edge_spread:.0f} "
                 f"min) and {agree:.0%} of {len(used)} months agree: a tilted or partly shaded "
                 "Rg sensor rather than a clock error; not called a clock problem")
+    if status == "consistent":
+        run = _shifted_run(used, threshold)
+        if run is not None:
+            first, last, size = run
+            rest = used["shift_minutes"][(used.index < first) | (used.index > last)]
+            rest_text = (f"against {float(np.median(rest)):+.0f} min in the rest of the record"
+                         if len(rest) else "the whole record")
+            notes = [n for n in notes if "tilted or partly shaded" not in n]
+            status = "shifted"
+            direction = "later" if size > 0 else "earlier"
+            problems.append(
+                f"clock: from {first:%Y-%m} to {last:%Y-%m} measured Rg comes {abs(size):.0f} "
+                f"min {direction} than the sun (peak and rise and fall agree), {rest_text}: the "
+                "logger clock was off in that period; correct those stamps")
     if status == "consistent" and hemisphere == "mismatch":
         status = "hemisphere"
     return ClockVerdict(status, median, spread, len(used), suggested, tuple(problems),

@@ -109,7 +109,11 @@ class Result:
         disagree, partial years); :func:`process` also issues each through
         :func:`warnings.warn` as a :class:`~fluxpart.errors.FluxpartWarning`.
     provenance : dict
-        Input file(s) and their SHA-256 where known, the screening thresholds.
+        Input file(s) and their SHA-256 where known, the screening thresholds;
+        ``clock``: the clock and geometry verdict (:meth:`fluxpart.clock.ClockVerdict.to_dict`:
+        status, estimated shift of Rg [min] and its spread, hemisphere) and the
+        ``clock_check`` setting; ``preflight``: the non-fatal findings of
+        :mod:`fluxpart.preflight` (stage: message).
     """
 
     site: Site

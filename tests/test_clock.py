@@ -188,3 +188,15 @@ def test_verdict_is_json_ready_and_input_untouched():
     assert set(record) >= {"status", "shift_minutes", "spread_minutes", "months_used",
                            "hemisphere", "problems", "notes"}
     assert isinstance(record["shift_minutes"], float)
+
+
+def test_clock_off_for_part_of_the_record_is_named():
+    """A logger clock reset one hour late for the last ten months of two years: the period
+    is named (the shift of Rg against pvlib's sun is the known truth)."""
+    on_time = synthetic_rg(45.0, 10.0, 1.0, interval_minutes=30, days=730, seed=1)
+    late = synthetic_rg(45.0, 10.0, 1.0, interval_minutes=30, days=730, seed=1,
+                        clock_shift_minutes=60.0)
+    rg = on_time.where(on_time.index < "2022-03-01", late)
+    verdict = _check(rg, 45.0, 10.0, 1.0, 30)
+    assert verdict.status == "shifted"
+    assert "from 2022-03 to 2022-12" in verdict.problems[0]
