@@ -215,6 +215,11 @@ def _summary_card(written: Written) -> tuple[str, bool]:
         kind, low, high = interval_of(row, "nee")
         combined_used |= kind == "combined"
         verb = "took up" if nee < 0 else "released"
+        if not np.isfinite(nee):
+            cards.append(f'<div class="card" data-period="{_e(label)}"><h3>'
+                         f"{_period_heading(label, first, last, partial)}</h3><p>No NEE sum was "
+                         "written for this period.</p></div>")
+            continue
         # t CO2 ha-1 of uptake (positive = uptake): written by the run where present
         uptake = row.get("net_uptake_t_co2_per_ha")
         if not _finite(uptake) and _finite(nee):
@@ -690,7 +695,7 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
     figure_html = "".join(
         f'<figure id="figure-{_e(f.name.removesuffix(".png"))}"><h3>{_e(f.title)}</h3>'
         f'<img src="data:image/png;base64,{base64.b64encode(f.png).decode("ascii")}" '
-        f'alt="{_e(f.title)}"><figcaption>{_e(f.caption)}</figcaption></figure>'
+        f'alt="{_e(f.title)}: {_e(f.caption)}"><figcaption>{_e(f.caption)}</figcaption></figure>'
         for f in figures)
     monthly = written.table("monthly")
     month_columns = [c for c in monthly.columns
