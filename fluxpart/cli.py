@@ -246,8 +246,8 @@ def _parser() -> argparse.ArgumentParser:
         "settings, and compare. Exit 0: bit-identical, or reproduced within floating-point "
         "rounding; 1: any other difference or tampering; 2: error.")
     verify.add_argument("directory", help="result folder written by run or demo")
-    verify.add_argument("--input", help="the input file, if it is not where the manifest "
-                        "says (relative to DIR)")
+    verify.add_argument("--input", action="append", help="the input file, if it is not "
+                        "where the manifest says (relative to DIR); once per file for several")
     verify.add_argument("--config", help="the site config, likewise (default: the recorded "
                         "place, else the copy of its text in the manifest)")
     verify.add_argument("--exact", action="store_true",

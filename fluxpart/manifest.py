@@ -41,7 +41,7 @@ from .errors import InputFileError
 
 __all__ = ["CAUTION", "MANIFEST_FILE", "MANIFEST_FORMAT", "REPORT_FOLDER", "RUN_LOG",
            "build_manifest", "library_versions", "manifest_seal", "portable_provenance",
-           "read_manifest", "recorded_path", "seal_intact"]
+           "read_manifest", "recorded_path", "seal_intact", "without_paths"]
 
 MANIFEST_FORMAT = "fluxpart-result/2"
 MANIFEST_FILE = "manifest.json"
@@ -127,16 +127,34 @@ def portable_provenance(provenance: dict, directory) -> dict:
     Returns
     -------
     dict
-        A copy in which ``input`` and ``site_config`` entries (a dict, or a list of
-        dicts, with a ``path``) hold paths relative to `directory`.
+        A copy in which the ``input`` and ``site_config`` entries (and each of
+        several input ``files``) hold paths relative to `directory`.
     """
     directory = Path(os.path.abspath(directory))
     out = _jsonable(provenance)
+    for entry in _path_entries(out):
+        entry["path"] = _relative(entry["path"], directory)
+    return out
+
+
+def _path_entries(provenance: dict) -> list[dict]:
+    """The dicts with a ``path`` among the input and site config records (files of several too)."""
+    found = []
     for key in ("input", "site_config"):
-        entries = out.get(key)
+        entries = provenance.get(key)
         for entry in entries if isinstance(entries, list) else [entries]:
-            if isinstance(entry, dict) and "path" in entry:
-                entry["path"] = _relative(entry["path"], directory)
+            if isinstance(entry, dict):
+                found += [entry] if "path" in entry else []
+                found += [f for f in entry.get("files") or [] if isinstance(f, dict)
+                          and "path" in f]
+    return found
+
+
+def without_paths(provenance: dict) -> dict:
+    """A copy of `provenance` without the recorded paths (which differ between places)."""
+    out = _jsonable(provenance)
+    for entry in _path_entries(out):
+        entry.pop("path")
     return out
 
 

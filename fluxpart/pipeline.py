@@ -750,8 +750,9 @@ def process_site_config(path, config: Config | None = None, *, progress=None,
 
     The input file's path and SHA-256 and the config file's path, SHA-256 and
     full text are recorded in the result's provenance (and so in
-    ``manifest.json``). `input_path`, when given, replaces the config's
-    ``[input] path`` (an auditor's moved copy of the input).
+    ``manifest.json``). `input_path` (a path, or a list of paths for several
+    files), when given, replaces the config's ``[input] path`` (an auditor's
+    moved copy of the input).
     """
     import dataclasses
     import hashlib
@@ -760,7 +761,9 @@ def process_site_config(path, config: Config | None = None, *, progress=None,
 
     site_config = read_site_config(path)
     if input_path is not None:
-        site_config = dataclasses.replace(site_config, input_paths=(Path(input_path),))
+        given = input_path if isinstance(input_path, (list, tuple)) else [input_path]
+        site_config = dataclasses.replace(site_config,
+                                          input_paths=tuple(Path(p) for p in given))
     config_bytes = Path(path).read_bytes()
     frame, report = site_config.read()
     from_file = Config.from_toml(path)

@@ -69,7 +69,7 @@ import pandas as pd
 from .config import Config
 from .errors import FluxpartError, InputFileError
 from .fingerprint import code_fingerprint, platform_differences, platform_record
-from .manifest import CAUTION, library_versions, read_manifest, recorded_path
+from .manifest import CAUTION, library_versions, read_manifest, recorded_path, without_paths
 from .store import file_sha256, read_table
 
 __all__ = ["NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference", "VerifyReport",
@@ -416,23 +416,13 @@ def _text(value) -> str:
     return text if len(text) <= 200 else text[:197] + "..."
 
 
-def _without_paths(provenance: dict) -> dict:
-    out = json.loads(json.dumps(provenance, default=str))
-    for key in ("input", "site_config"):
-        entries = out.get(key)
-        for entry in entries if isinstance(entries, list) else [entries]:
-            if isinstance(entry, dict):
-                entry.pop("path", None)
-    return out
-
-
 def _compare_manifests(stored: dict, recomputed: dict) -> list:
     pairs = []
     for key in _PATH_FREE:
         pairs += field_differences(stored.get(key, "(absent)"), recomputed.get(key, "(absent)"),
                                    key)
-    pairs += field_differences(_without_paths(stored.get("provenance", {})),
-                               _without_paths(recomputed.get("provenance", {})), "provenance")
+    pairs += field_differences(without_paths(stored.get("provenance", {})),
+                               without_paths(recomputed.get("provenance", {})), "provenance")
     tables = {name: {k: v for k, v in entry.items() if k != "sha256"}
               for name, entry in (stored.get("tables") or {}).items() if isinstance(entry, dict)}
     again = {name: {k: v for k, v in entry.items() if k != "sha256"}
@@ -516,51 +506,52 @@ def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: l
                          "--config")
 
 
-def _input_file(directory: Path, recorded: dict, given, config_path: Path | None):
-    """Return (input path, difference or None)."""
-    sha = recorded.get("sha256")
-    if given is not None:
-        path = Path(given)
-        if not path.is_file():
+def _input_files(directory: Path, recorded: dict, given, config_path: Path | None):
+    """Return (input path or list of paths, difference or None).
+
+    One file: the file given with ``--input``, else the one at the recorded path
+    (relative to the result folder), else the one the site config names; it must
+    have the recorded SHA-256. Several files (``recorded["files"]``): each is
+    looked for likewise, ``--input`` given once per file; each must have its
+    recorded SHA-256.
+    """
+    parts = recorded.get("files") if isinstance(recorded.get("files"), list) else None
+    wanted = parts if parts else [recorded]
+    given = [] if given is None else [given] if isinstance(given, (str, Path)) else list(given)
+    for path in given:
+        if not Path(path).is_file():
             raise InputFileError(f"verify: the input file {str(path)!r} given with --input "
                                  "does not exist")
-    else:
-        path = recorded_path(directory, recorded)
-        if not _matching(path, sha) and config_path is not None:
-            from .io import read_site_config
+    if given and len(given) != len(wanted):
+        raise InputFileError(f"verify: the result was computed from {len(wanted)} input "
+                             f"file(s); give --input once for each ({len(given)} given)")
+    beside_config = []
+    if config_path is not None and not given:
+        from .io import read_site_config
 
-            beside_config = read_site_config(config_path).input_path
-            if _matching(beside_config, sha):
-                path = beside_config
-        if path is None or not path.is_file():
-            raise InputFileError(f"verify: the input file {str(path)!r} recorded in the manifest "
-                                 "(relative to the result folder) does not exist; give its new "
-                                 "location with --input")
-    actual = file_sha256(path)
-    if actual != sha:
-        return None, Difference("input", "input", column="input file", row=str(path),
-                                stored=str(sha), recomputed=actual)
-    return path, None
-
-
-def _input_files(recorded: dict, config_path: Path | None):
-    """A run over several input files: the site config's files must hash as recorded.
-
-    Return a difference or None. The files are found through the site config that
-    lists them (its ``[input] path``).
-    """
-    if config_path is None:
-        raise InputFileError("verify: the run read several input files; give the site config "
-                             "that lists them with --config (its [input] path finds them)")
-    from .io import read_site_config
-
-    site_config = read_site_config(config_path)
-    actual = site_config.input_sha256()
-    if actual != recorded.get("sha256"):
-        return Difference("input", "input", column="input files",
-                          row=", ".join(str(path) for path in site_config.input_paths),
-                          stored=str(recorded.get("sha256")), recomputed=actual)
-    return None
+        try:
+            beside_config = list(read_site_config(config_path).input_paths)
+        except FluxpartError:
+            beside_config = []
+    found = []
+    for number, entry in enumerate(wanted):
+        sha = entry.get("sha256")
+        if given:
+            path = Path(given[number])
+        else:
+            path = recorded_path(directory, entry)
+            if not _matching(path, sha):
+                path = next((p for p in beside_config if _matching(p, sha)), path)
+            if path is None or not path.is_file():
+                raise InputFileError(f"verify: the input file {str(path)!r} recorded in the "
+                                     "manifest (relative to the result folder) does not exist; "
+                                     "give its new location with --input")
+        actual = file_sha256(path)
+        if actual != sha:
+            return None, Difference("input", "input", column="input file", row=str(path),
+                                    stored=str(sha), recomputed=actual)
+        found.append(path)
+    return (found if parts else found[0]), None
 
 
 def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch: Path,
@@ -589,10 +580,7 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
     if changed is not None:
         return "run", None, [changed]
     real_config = None if site_config.parent == scratch else site_config
-    if input_path is None and len(provenance["input"].get("files") or []) > 1:
-        data_path, changed = None, _input_files(provenance["input"], real_config)
-    else:
-        data_path, changed = _input_file(directory, provenance["input"], input_path, real_config)
+    data_path, changed = _input_files(directory, provenance["input"], input_path, real_config)
     if changed is not None:
         return "run", None, [changed]
     if provenance.get("settings") == "site config":
@@ -612,9 +600,10 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     ----------
     directory : path-like
         Folder written by ``fluxpart run``, ``fluxpart demo`` or ``Result.write``.
-    input_path : path-like, optional
-        The input file, if it is not where the manifest says (relative to the
-        result folder); it must have the recorded SHA-256.
+    input_path : path-like or list of path-like, optional
+        The input file (one per file for a result read from several), if it is
+        not where the manifest says (relative to the result folder); each must
+        have its recorded SHA-256.
     config_path : path-like, optional
         The site config, likewise; without it, the one at the recorded place or
         else the copy of its text in the manifest is used.

@@ -241,3 +241,26 @@ def test_folder_without_manifest_is_a_clear_error(tmp_path, capsys):
     """A folder that is not a result exits 2 with one error line."""
     assert main(["verify", str(tmp_path)]) == 2
     assert "manifest.json" in capsys.readouterr().err
+
+
+def test_several_input_files_are_found_or_given_once_each(tmp_path, capsys):
+    """A record read from two files: found beside a moved bundle, or given with two --input."""
+    config = make_bundle(tmp_path / "site")
+    lines = (tmp_path / "site" / "tower.csv").read_text().splitlines(keepends=True)
+    half = len(lines) // 2
+    (tmp_path / "site" / "part1.csv").write_text("".join(lines[:half]))
+    (tmp_path / "site" / "part2.csv").write_text("".join(lines[:1] + lines[half:]))
+    (tmp_path / "site" / "tower.csv").unlink()
+    config.write_text(config.read_text().replace('path = "tower.csv"',
+                                                 'path = ["part1.csv", "part2.csv"]'))
+    process_site_config(config).write(tmp_path / "site" / "out")
+    moved = tmp_path / "moved"
+    shutil.copytree(tmp_path / "site", moved)
+    shutil.rmtree(tmp_path / "site")
+    assert verify(moved / "out").identical
+    alone = tmp_path / "alone"
+    shutil.move(moved / "out", alone)
+    assert main(["verify", str(alone), "--input", str(moved / "part1.csv")]) == 2
+    assert "once for each" in capsys.readouterr().err
+    assert main(["verify", str(alone), "--input", str(moved / "part1.csv"),
+                 "--input", str(moved / "part2.csv")]) == 0
