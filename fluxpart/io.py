@@ -170,6 +170,9 @@ class ReadReport:
         Records with a turbulent flux but no storage term, whose NEE was set missing.
     accepted_units : tuple of str
         Variables listed in ``[input] accept_units`` whose unit checks only warned.
+    unit_refusals : tuple of str
+        Unit or plausibility problems that stop ``run``, when read with
+        ``unit_problems="report"`` (as ``fluxpart check`` does); also in `warnings`.
     """
 
     source: str
@@ -200,6 +203,7 @@ class ReadReport:
     flag_rejected: int = 0
     storage_missing: int = 0
     accepted_units: tuple = ()
+    unit_refusals: tuple = ()
 
     def __str__(self) -> str:
         files = self.files or (self.source,)
@@ -274,6 +278,7 @@ class ReadReport:
             "flag_accept": list(self.flag_accept), "flag_rejected": self.flag_rejected,
             "storage_missing": self.storage_missing,
             "accepted_units": list(self.accepted_units),
+            "unit_refusals": list(self.unit_refusals),
             "derived": list(self.derived), "warnings": list(self.warnings),
         }
 
@@ -372,9 +377,14 @@ class SiteConfig:
                                for path in self.input_paths]
         return record
 
-    def read(self) -> tuple[pd.DataFrame, ReadReport]:
-        """Read the site's records: ``(frame, report)`` as from :func:`read_table`."""
-        return read_table(list(self.input_paths), **self.table_arguments())
+    def read(self, *, unit_problems: str = "refuse") -> tuple[pd.DataFrame, ReadReport]:
+        """Read the site's records: ``(frame, report)`` as from :func:`read_table`.
+
+        ``unit_problems="report"`` lists a unit mix-up in the report instead of
+        raising (``fluxpart check``); the default refuses it (``fluxpart run``).
+        """
+        return read_table(list(self.input_paths), **self.table_arguments(),
+                          unit_problems=unit_problems)
 
     def table_arguments(self) -> dict:
         """Return the keyword arguments of :func:`read_table` for this site."""
@@ -518,7 +528,8 @@ def read_site_config(path) -> SiteConfig:
 def read_table(path, *, columns, units=None, time_column, time_format, time_marks="start",
                missing=_DEFAULT_MISSING, delimiter=",", interval_minutes=None, decimal=".",
                encoding=None, rows_before_header=0, rows_after_header=0, time_zone=None,
-               flag_accept=_DEFAULT_FLAG_ACCEPT, accept_units=(), site=None):
+               flag_accept=_DEFAULT_FLAG_ACCEPT, accept_units=(), site=None,
+               unit_problems="refuse"):
     """Read delimited files of tower records into the canonical frame.
 
     Parameters
@@ -569,6 +580,11 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     site : Site, optional
         The site: its ``utc_offset`` converts stamps carrying a UTC offset or civil
         time; its position enables the check of Rg against potential radiation.
+    unit_problems : {"refuse", "report"}
+        What a unit mix-up or mostly implausible column does: raise
+        ImplausibleValueError (default), or go into ``report.unit_refusals`` and
+        ``report.warnings`` with the values kept as declared (for a preflight that
+        lists every problem).
 
     Returns
     -------
@@ -646,6 +662,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     interval_minutes = _check_interval(interval_minutes)
     flag_accept = _check_flag_accept(flag_accept)
     accept_units = _check_accept_units(accept_units)
+    if unit_problems not in ("refuse", "report"):
+        raise ConfigError(f"unit_problems = {unit_problems!r}: expected 'refuse' or 'report'")
+    preflight: list[str] | None = [] if unit_problems == "report" else None
     if not isinstance(time_format, str) or not time_format:
         raise ConfigError(f"[input] time_format = {time_format!r}: expected a format string "
                           "such as '%Y-%m-%d %H:%M'")
@@ -690,17 +709,18 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     converted = {name: to_canonical(values[name], name, units.get(name),
                                     interval_minutes=interval_minutes)
                  for name in mapping}
+    # the specific mix-ups first (their message names the fix), then the ranges
     accepted = []
-    for name in converted:
-        message = implausible_message(name, converted[name], values[name], units.get(name),
-                                      mapping[name], missing)
-        if message:
-            accepted.append(_refuse_or_warn(name, message, accept_units, warnings))
     potential = _potential(starts, site, interval_minutes)
     refusals, suspicions = mixup_messages(converted, units, mapping, interval_minutes, potential)
     warnings.extend(suspicions)
     for name, message in refusals.items():
-        accepted.append(_refuse_or_warn(name, message, accept_units, warnings))
+        accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
+    for name in converted:
+        message = implausible_message(name, converted[name], values[name], units.get(name),
+                                      mapping[name], missing)
+        if message and name not in refusals:
+            accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
 
     derived: list[str] = []
     source_of = dict(mapping)
@@ -791,6 +811,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         flag_rejected=flag_rejected,
         storage_missing=storage_missing,
         accepted_units=tuple(sorted(set(name for name in accepted if name))),
+        unit_refusals=tuple(preflight or ()),
     )
     return frame, report
 
@@ -1012,12 +1033,18 @@ def _check_accept_units(value) -> tuple:
     return tuple(value)
 
 
-def _refuse_or_warn(name: str, message: str, accept_units: tuple, warnings: list):
+def _refuse_or_warn(name: str, message: str, accept_units: tuple, warnings: list,
+                    preflight: list | None = None):
+    """Warn for a variable in accept_units; else refuse (or, in a preflight, list it)."""
     if name in accept_units:
         warnings.append(message.split("; ")[0] + f"; kept as declared ([input] accept_units "
                         f"lists {name})")
         return name
-    raise ImplausibleValueError(message)
+    if preflight is None:
+        raise ImplausibleValueError(message)
+    preflight.append(message)
+    warnings.append(message + " (run stops)")
+    return None
 
 
 # --------------------------------------------------------------------------- files

@@ -241,11 +241,17 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
     # (allowance 10 % + 1 hPa for sensor error and the lag between the sensors)
     above = vpd[both] > 1.1 * saturation + 1.0
     if above.mean() > IMPLAUSIBLE_SHARE:
+        declared_scale = to_canonical(np.array([1.0]), "vpd", declared)[0]
+        fits = [unit for unit in units_for("vpd")
+                if to_canonical(np.array([1.0]), "vpd", unit)[0] < declared_scale
+                and np.mean(vpd[both] * to_canonical(np.array([1.0]), "vpd", unit)[0]
+                            / declared_scale > 1.1 * saturation + 1.0) <= IMPLAUSIBLE_SHARE]
+        fix = (f"the values look like {fits[0]!r}: set [input.units] vpd = \"{fits[0]}\""
+               if fits else "check the column mapping and [input.units] vpd")
         return (f"column {columns['vpd']!r} (vpd, read as {shown!r}): {above.mean():.0%} of "
                 "records exceed the saturation vapour pressure at tair (median "
-                f"{np.median(ratio):.3g} times it), which no air can; the values are too large "
-                "by a unit: if the file is in hPa set [input.units] vpd = \"hPa\", if in Pa "
-                "\"Pa\" (or list vpd in [input] accept_units)"), None
+                f"{np.median(ratio):.3g} times it), which no air can; {fix} (or list vpd in "
+                "[input] accept_units)"), None
     if declared not in (None, "hPa", "mbar"):
         return None, None
     rh = converted.get("rh")
@@ -284,6 +290,20 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
     if bright.sum() < _MIN_ACTIVE_RECORDS:
         return None
     values = rg[bright]
+    high = (np.asarray(potential) > 600.0) & np.isfinite(rg)
+    if high.sum() >= _MIN_ACTIVE_RECORDS:
+        ratio = rg[high] / np.asarray(potential)[high]
+        # Global radiation at the surface stays below the radiation at the top of the
+        # atmosphere except for brief cloud-edge enhancement; clear-sky transmittance is
+        # about 0.75 (common practice). PPFD in µmol m-2 s-1 is about 2.1 times Rg in
+        # W m-2 (fluxpart.variables.PPFD_PER_RG), so with the sun high it sits above it.
+        if np.median(ratio) > 0.8 and np.percentile(ratio, 90) > 1.25:
+            return (f"column {columns['rg']!r} (rg, read as W m-2): with the sun high, half of "
+                    f"the values exceed {np.median(ratio):.2f} times the radiation at the top "
+                    "of the atmosphere and a tenth exceed "
+                    f"{np.percentile(ratio, 90):.2f} times it, which global radiation cannot; "
+                    "the values look like PPFD in µmol m-2 s-1: map the column as ppfd in "
+                    "[input.columns] instead of rg (or list rg in [input] accept_units)")
     # With the sun well up (potential radiation above 400 W m-2) even a thick overcast
     # passes 10 % or more of it (common practice), so a W m-2 record shows tens to
     # hundreds; kW m-2 or MJ m-2 per interval show numbers below about 5.

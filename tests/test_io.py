@@ -5,6 +5,7 @@ the reader); outside reference values come from reference/units.toml.
 """
 
 import hashlib
+import re
 
 import numpy as np
 import pandas as pd
@@ -1251,3 +1252,26 @@ def test_header_on_another_line_names_rows_before_header(tmp_path):
         _read(path)
     frame, _ = _read(path, rows_before_header=1)
     pd.testing.assert_frame_equal(frame, _plain(tmp_path, _records()))
+
+
+def test_ppfd_mapped_as_rg_refused(tmp_path):
+    """PPFD (about 2.1 µmol J-1 times Rg) mapped as rg exceeds the top-of-atmosphere
+    radiation with the sun high, which global radiation cannot: refused, naming ppfd."""
+    records, site = _climate("grassland")
+    records["sw_in"] = (records["sw_in"] * 2.1).round(1)
+    with pytest.raises(ImplausibleValueError, match=r"'sw_in' \(rg.*PPFD.*map the column as "
+                                                    r"ppfd"):
+        _read(_write(tmp_path / "t.csv", records), site=site)
+
+
+def test_preflight_lists_unit_problems_instead_of_raising(tmp_path):
+    """unit_problems="report" (fluxpart check) lists the refusal and keeps reading; the
+    default (fluxpart run) raises the same message."""
+    records, site = _climate("crop")
+    records["vpd_air"] = (records["vpd_air"] / 10).round(4)
+    path = _write(tmp_path / "t.csv", records)
+    frame, report = _read(path, site=site, unit_problems="report")
+    assert len(report.unit_refusals) == 1 and "vpd = \"kPa\"" in report.unit_refusals[0]
+    assert report.warnings[-1].endswith("(run stops)")
+    with pytest.raises(ImplausibleValueError, match=re.escape(report.unit_refusals[0])):
+        _read(path, site=site)

@@ -6,7 +6,10 @@ archetypes, randomised climate) as a plain CSV, reads it back with
 
 - correct files refused, or warned about a unit (should be 0);
 - each mix-up refused: NEE in mg CO2 m-2 s-1 (÷ 22.7), VPD in kPa (÷ 10), with and
-  without rh mapped, Rg in kW m-2 (÷ 1000) and in MJ m-2 per interval, tair in K.
+  without rh mapped, Rg in kW m-2 (÷ 1000) and in MJ m-2 per interval, tair in K, PPFD
+  mapped as Rg (× 2.1);
+- correct files whose clock is 2 h off (a clock error, not a unit one) refused or warned
+  about a unit (should be 0: the clock check's job).
 
 Also prints the reading time of one year of half-hourly records.
 
@@ -48,7 +51,7 @@ def main() -> None:
     parser.add_argument("--sites", type=int, default=14)
     args = parser.parse_args()
     folder = Path(tempfile.mkdtemp())
-    false_alarms, caught, tried, seconds = 0, {}, {}, []
+    false_alarms, clock_alarms, caught, tried, seconds = 0, 0, {}, {}, []
     for seed in range(args.sites):
         year = scenarios.generate(seed)
         frame, site = year.frame, year.site
@@ -70,7 +73,18 @@ def main() -> None:
             "rg kW m-2": ("rg", 1e-3, True),
             "rg MJ m-2 per interval": ("rg", interval_seconds * 1e-6, True),
             "tair K": ("tair", None, True),
+            "rg is PPFD": ("rg", 2.102, True),
         }
+        for hours in (-2, 2):  # a clock error must not pass for a unit error
+            shifted = frame.copy()
+            shifted["rg"] = shifted["rg"].shift(int(hours * 3600 / interval_seconds))
+            _write(shifted, path)
+            try:
+                _, report = _read(path, shifted, site)
+                clock_alarms += any("[input.units]" in w for w in report.warnings)
+            except ImplausibleValueError as error:
+                clock_alarms += 1
+                print(f"seed {seed}: clock shift {hours} h refused as a unit: {error}")
         for label, (column, factor, with_rh) in mixups.items():
             wrong = frame.copy()
             wrong[column] = wrong[column] + 273.15 if factor is None else wrong[column] * factor
@@ -81,6 +95,7 @@ def main() -> None:
             except ImplausibleValueError:
                 caught[label] = caught.get(label, 0) + 1
     print(f"correct files refused or warned: {false_alarms} of {args.sites}")
+    print(f"clock-shifted files refused as units: {clock_alarms} of {2 * args.sites}")
     for label, count in tried.items():
         print(f"{label:24s} refused {caught.get(label, 0)} of {count}")
     print(f"read time per site-year: median {np.median(seconds):.2f} s")
