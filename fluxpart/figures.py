@@ -398,7 +398,7 @@ def figure_daily(drawing, written, interval) -> Figure:
             if sigma is not None:
                 spread = 1.96 * daily[sigma].to_numpy(dtype=float)
                 axis.fill_between(dates, values - spread, values + spread, color=colour,
-                                  alpha=0.25, linewidth=0, label=f"{label}: 95 % band")
+                                  alpha=0.25, linewidth=0)
                 banded.append(column)
             axis.plot(dates, values, color=colour, linestyle=style, linewidth=1.1, label=label)
             drawn = True
@@ -406,7 +406,8 @@ def figure_daily(drawing, written, interval) -> Figure:
             _no_data(axis, "not in the daily table")
             continue
         axis.axhline(0.0, color="#777777", linewidth=0.6)
-        axis.set_title(title, loc="left")
+        shaded = any(column in banded for column, *_ in lines)
+        axis.set_title(title + ("; shaded: 95 % band" if shaded else ""), loc="left")
         axis.set_ylabel(f"[{_CARBON_UNIT} d-1]")
         axis.legend(loc="upper left", ncols=2)
     if len(daily):
