@@ -183,7 +183,7 @@ def _command_check(args) -> int:
 
     site_config = read_site_config(args.config)
     config = Config.from_toml(args.config)
-    frame, report = site_config.read()
+    frame, report = site_config.read(unit_problems="report")  # listed, exit 1; run refuses
     table = coverage_table(frame, report.interval_minutes)
     verdict, findings = check_record(frame, site_config.site, config,
                                      time_marks=report.time_marks,

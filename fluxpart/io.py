@@ -263,8 +263,9 @@ class ReadReport:
     def to_dict(self) -> dict:
         """The report as plain JSON-ready values (for the manifest's provenance)."""
         return {
-            # file names only: the same run from another folder records the same
-            "files": [Path(name).name for name in (self.files or (self.source,))],
+            # no file names or paths: provenance.input records them, and a rerun from a
+            # moved or renamed copy must give the same reader record
+            "files": len(self.files or (self.source,)),
             "encodings": list(self.encodings),
             "records_read": self.records_read, "records": self.records,
             "interval_minutes": self.interval_minutes,
@@ -1167,8 +1168,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         if absurd.any():
             warnings.append(f"column {column!r} ({name.split(':')[0]}): {int(absurd.sum())} "
                             f"infinite or absurd value(s) (magnitude {ABSURD_MAGNITUDE:g} or "
-                            "more) read as missing, first on line "
-                            f"{int(lines[np.flatnonzero(absurd)[0]])} of {path.name!r}")
+                            "more) read as missing, first on data line "
+                            f"{int(lines[np.flatnonzero(absurd)[0]])} of its file")
 
     # exact duplicate rows: same stamp and same value in every column read
     table = pd.DataFrame(values)

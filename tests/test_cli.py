@@ -71,14 +71,17 @@ def test_module_entry_point_runs():
     assert "demo" in completed.stdout and "check" in completed.stdout
 
 
-def test_run_repeats_the_readers_unit_warning(example, tmp_path, capsys):
-    """A suspected unit mix-up (VPD in kPa declared as hPa) is repeated by `fluxpart run`."""
+def test_unit_mixup_listed_by_check_and_refused_by_run(example, tmp_path, capsys):
+    """Issue 12: VPD in kPa declared as hPa (1 kPa = 10 hPa) is a problem for `check`
+    (exit 1, naming the fix) and `run` refuses it with exit 2 before writing anything."""
     example.write_text(example.read_text().replace('vpd = "kPa"', 'vpd = "hPa"'))
-    main(["run", str(example), "--out", str(tmp_path / "out"), "--quiet"])
+    assert main(["check", str(example)]) == 1
     out = capsys.readouterr().out
-    assert "warning: input:" in out and "kPa" in out
-    manifest = json.loads((tmp_path / "out" / "manifest.json").read_text())
-    assert any("kPa" in text for text in manifest["provenance"]["reader"]["warnings"])
+    assert 'vpd = "kPa"' in out and "(run stops)" in out
+    assert main(["run", str(example), "--out", str(tmp_path / "out"), "--quiet"]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("error: column 'vpd_kpa'") and 'vpd = "kPa"' in err
+    assert not (tmp_path / "out").exists()
 
 
 def test_check_names_a_wrong_utc_offset_and_run_refuses_it(example, tmp_path, capsys):

@@ -1217,7 +1217,7 @@ def test_input_record_of_several_files(tmp_path):
     joint = "".join(f"tower_{x}.csv\t{_sha256(tmp_path / f'tower_{x}.csv')}\n" for x in "ab")
     assert record["sha256"] == hashlib.sha256(joint.encode()).hexdigest()
     _, report = site_config.read()
-    assert report.to_dict()["files"] == ["tower_a.csv", "tower_b.csv"]
+    assert report.to_dict()["files"] == 2  # how many; their paths are in the input record
 
 
 def test_messy_logger_example_reads_to_the_demo_year(tmp_path):
