@@ -832,11 +832,12 @@ def build_report(directory, out=None, *, progress=None) -> Path:
     interval = interval_minutes(written.timeseries.index)
     tick = progress if progress is not None else (lambda: None)
     figures = draw_figures(written, tick)
+    page = _page(written, directory, figures, interval).encode("utf-8")
+    # every byte is ready before the first file is written: a failure leaves no half report
     for figure in figures:
         atomic_write_bytes(out / figure.name, figure.png)
-    page = _page(written, directory, figures, interval)
     path = out / "report.html"
-    atomic_write_bytes(path, page.encode("utf-8"))
+    atomic_write_bytes(path, page)
     tick()
     return path
 

@@ -629,3 +629,17 @@ def test_a_folder_without_manifest_is_a_clear_error(tmp_path, capsys):
         build_report(tmp_path)
     assert main(["report", str(tmp_path), "--quiet"]) == 2
     assert "not a fluxpart result folder" in capsys.readouterr().err
+
+
+def test_a_folder_that_does_not_match_its_manifest_is_refused(folder, tmp_path, capsys):
+    """A table changed after writing: one error naming the file, no report written."""
+    copy = tmp_path / "tampered"
+    shutil.copytree(folder["directory"], copy, ignore=shutil.ignore_patterns("report"))
+    table = pq.read_table(copy / "annual.parquet")
+    pq.write_table(table.slice(0, 0), copy / "annual.parquet")
+    with pytest.raises(InputFileError, match="annual.parquet"):
+        build_report(copy, tmp_path / "page")
+    assert not (tmp_path / "page").exists()
+    assert main(["report", str(copy), "--quiet"]) == 2
+    assert "annual.parquet" in capsys.readouterr().err
+    assert not (copy / "report").exists()
