@@ -111,12 +111,29 @@ def _carries_offset(text: pd.Series, time_format: str) -> bool:
     return False
 
 
-def _hour_24(text: pd.Series, failed: np.ndarray) -> tuple[pd.Series, np.ndarray]:
+def _hour_offset(time_format: str) -> int | None:
+    """Character position of the hour in stamps of `time_format`, if fixed, else None."""
+    if time_format.count("%H") != 1:
+        return None
+    prefix = time_format.split("%H")[0]
+    if any(code in prefix for code in ("%b", "%B", "%a", "%A", "%p", "%z", "%Z", "%f", "%j")):
+        return None
+    return len(datetime(2001, 2, 3).strftime(prefix))
+
+
+def _hour_24(text: pd.Series, failed: np.ndarray, time_format: str
+             ) -> tuple[pd.Series, np.ndarray]:
     """Rewrite hour-24 stamps among `failed` as hour 0; return the text and a mask."""
     rewritten = text.copy()
     is_24 = np.zeros(len(text), dtype=bool)
+    offset = _hour_offset(time_format)
     for position in np.flatnonzero(failed):
         cell = text.iloc[position]
+        if offset is not None and cell[offset:offset + 2] == "24":
+            # compact stamps such as 202106012400: the hour sits at a fixed place
+            rewritten.iloc[position] = cell[:offset] + "00" + cell[offset + 2:]
+            is_24[position] = True
+            continue
         for pattern, replace in _HOUR_24:
             new, count = pattern.subn(replace, cell, count=1)
             if count:
@@ -181,7 +198,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     failed = parsed.isna().to_numpy()
     is_24 = np.zeros(len(text), dtype=bool)
     if failed.any():
-        rewritten, is_24 = _hour_24(text, failed)
+        rewritten, is_24 = _hour_24(text, failed, time_format)
         if is_24.any():
             again = _to_datetime(rewritten[is_24], time_format, utc=with_offset)
             parsed = parsed.copy()

@@ -1275,3 +1275,13 @@ def test_preflight_lists_unit_problems_instead_of_raising(tmp_path):
     assert report.warnings[-1].endswith("(run stops)")
     with pytest.raises(ImplausibleValueError, match=re.escape(report.unit_refusals[0])):
         _read(path, site=site)
+
+
+def test_hour_24_in_compact_stamps(tmp_path):
+    """Hour 24 in a compact %Y%m%d%H%M stamp (202106012400) is the next midnight too."""
+    records = _records(periods=6, start="2021-06-01 22:00")
+    path = _write(tmp_path / "t.csv", records, marks="end", time_format="%Y%m%d%H%M")
+    path.write_text(path.read_text().replace("202106020000", "202106012400"))
+    frame, report = _read(path, time_marks="end", time_format="%Y%m%d%H%M")
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
+    assert report.stamp_conversions["hour_24"] == 1
