@@ -1528,7 +1528,7 @@ def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame,
                | out["reco_uncertainty_partitioning"].isna()}
     labels = [", ".join(name for name, mask in missing.items() if mask.loc[year])
               for year in out.index]
-    out["uncertainty_parts_missing"] = pd.Series(labels, index=out.index, dtype=object)
+    out["uncertainty_parts_missing"] = pd.Series(labels, index=out.index)
     return out
 
 
