@@ -852,7 +852,7 @@ def figure_night_respiration(drawing, written, interval) -> Figure:
     e0_annual = written.table("parameters_nighttime_e0_annual")
     rref_windows = written.table("parameters_nighttime_rref")
     count = max(len(periods), 1)
-    width, height = 4.6 * min(count, 3) + 1.2, 4.2 * -(-count // 3)
+    width, height = max(4.6 * min(count, 3) + 1.2, 8.0), 4.6 * -(-count // 3)
     figure = drawing.figure(width, height, left=0.7 / width, right=1 - 1.0 / width,
                             top=1 - 0.45 / height, bottom=0.6 / height, wspace=0.3,
                             hspace=0.4)
