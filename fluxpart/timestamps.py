@@ -319,8 +319,11 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         rows = np.flatnonzero(stamps == stamps[first])
         listed = ", ".join(str(int(lines[r])) for r in rows[:5])
         hint = "keep one of them in a copy of the file"
-        hours = pd.DatetimeIndex(stamps[duplicated]).floor("h").unique()
-        if time_zone is None and len(hours) <= 2 and stamps[first].month in (3, 4, 9, 10, 11):
+        repeated = pd.DatetimeIndex(stamps[duplicated])
+        same_day = repeated[repeated.normalize() == stamps[first].normalize()]
+        # a daylight-saving repeat: one or two clock hours of one day in an autumn month
+        if (time_zone is None and len(same_day.floor("h").unique()) <= 2
+                and stamps[first].month in (3, 4, 9, 10, 11)):
             hint = ("if the file is in civil time with daylight saving, set [input] "
                     "time_zone = \"Area/City\"; otherwise " + hint)
         raise DuplicateTimestampError(
