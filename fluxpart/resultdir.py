@@ -35,6 +35,7 @@ import ctypes.util
 import errno
 import getpass
 import os
+import re
 import secrets
 import shutil
 import socket
@@ -169,10 +170,28 @@ def clean_leftovers(directory) -> list[str]:
             newest.rename(directory)
             _fsync_dir(directory.parent)
             done.append(f"restored the earlier result from {newest.name}")
-    for leftover in _leftovers(directory, _STAGING) + _leftovers(directory, _RETIRED):
+    for leftover in (_leftovers(directory, _STAGING) + _leftovers(directory, _RETIRED)
+                     + _earlier_staging(directory)):
         shutil.rmtree(leftover, ignore_errors=True)
         done.append(f"removed {leftover.name}")
     return done
+
+
+def _earlier_staging(directory: Path) -> list[Path]:
+    """Staging folders of fluxpart 0.1 writers (``.NAME.`` + 8 random characters) that
+    hold nothing but table files and temporary files."""
+    pattern = re.compile(rf"^\.{re.escape(directory.name)}\.[a-z0-9_]{{8}}$")
+    found = []
+    for path in _leftovers(directory, ""):
+        if not pattern.match(path.name):
+            continue
+        try:
+            files = list(path.iterdir())
+        except OSError:
+            continue
+        if all(f.is_file() and (f.suffix in (".parquet", ".tmp")) for f in files):
+            found.append(path)
+    return found
 
 
 # --------------------------------------------------------------------------- swapping

@@ -240,3 +240,15 @@ def test_load_refuses_a_folder_that_does_not_match_its_manifest(short_result, tm
         handle.write(b"\0")
     with pytest.raises(InputFileError, match="daily.parquet has SHA-256"):
         fluxpart.load(out)
+
+
+def test_staging_left_by_an_earlier_version_is_removed(short_result, tmp_path):
+    """A `.out.xxxxxxxx` staging folder of tables left by fluxpart 0.1 goes; others stay."""
+    old = tmp_path / ".out.k3j2h1g0"
+    old.mkdir()
+    (old / "daily.parquet").write_bytes(b"PAR1")
+    mine = tmp_path / ".out.notes123"
+    mine.mkdir()
+    (mine / "notes.txt").write_text("not a table")
+    short_result.write(tmp_path / "out")
+    assert not old.exists() and (mine / "notes.txt").exists()
