@@ -39,9 +39,14 @@ def _text(values, decimals):
     return np.where(np.isfinite(values), text, "-9999")
 
 
-def write_logger_example(directory, seed=3) -> Path:
-    """Write the two logger files and the site config; return the config's path."""
-    frame, _ = site_year(seed, variant="c4")
+def write_logger_example(directory, seed=3, frame=None) -> Path:
+    """Write the two logger files and the site config; return the config's path.
+
+    `frame` may pass ``fluxpart.demo.site_year(seed, variant="c4")[0]`` when the caller
+    already has it.
+    """
+    if frame is None:
+        frame, _ = site_year(seed, variant="c4")
     the_site = site("c4")
     directory = Path(directory)
     folder = directory / SUBFOLDER

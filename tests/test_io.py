@@ -1232,8 +1232,8 @@ def test_messy_logger_example_reads_to_the_demo_year(tmp_path):
     spec = importlib.util.spec_from_file_location("make_logger_example", script)
     module = importlib.util.module_from_spec(spec)
     spec.loader.exec_module(module)
-    frame, report = read_site_config(module.write_logger_example(tmp_path)).read()
     truth, _ = demo.site_year(3, variant="c4")
+    frame, report = read_site_config(module.write_logger_example(tmp_path, 3, truth)).read()
     # rounding of the files: NEE and storage 0.001, rh 0.1 (vpd from it), ppfd 0.01
     for name, tolerance in {"nee": 1.1e-3, "rg": 0.01, "tair": 0.006, "ustar": 6e-4,
                             "tsoil": 0.006, "rh": 0.051, "vpd": 0.05}.items():
