@@ -470,37 +470,74 @@ def _matching(path: Path | None, sha: str | None) -> bool:
     return path is not None and path.is_file() and file_sha256(path) == sha
 
 
+def _recorded_copy(recorded: dict, scratch: Path) -> Path | None:
+    """Write the site config text recorded in the manifest to `scratch`; None if absent."""
+    import hashlib
+
+    text = recorded.get("text")
+    if not isinstance(text, str):
+        return None
+    data = text.encode("utf-8")
+    if hashlib.sha256(data).hexdigest() != recorded.get("sha256"):
+        return None
+    copy = scratch / (Path(str(recorded.get("path", "site.toml"))).name or "site.toml")
+    copy.write_bytes(data)
+    return copy
+
+
+def _same_but_input_path(path: Path, copy: Path | None) -> bool:
+    """True when two site configs differ at most in ``[input] path``."""
+    import tomllib
+
+    if copy is None:
+        return False
+    try:
+        documents = [tomllib.loads(p.read_text(encoding="utf-8")) for p in (path, copy)]
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        return False
+    for document in documents:
+        if isinstance(document.get("input"), dict):
+            document["input"].pop("path", None)
+    return documents[0] == documents[1]
+
+
 def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: list):
-    """Return (site config path, difference or None)."""
+    """Return (site config for the rerun, site config that locates the input, difference).
+
+    A config given with ``--config`` must have the recorded SHA-256, or differ from
+    the recorded text only in its ``[input] path`` (an auditor pointing it at a
+    moved input): then the recorded text drives the rerun and the given file
+    locates the input.
+    """
     sha = recorded.get("sha256")
     if given is not None:
         path = Path(given)
         if not path.is_file():
             raise InputFileError(f"verify: the site config {str(path)!r} given with --config "
                                  "does not exist")
-        if file_sha256(path) != sha:
-            return None, Difference("input", "input", column="site config", row=str(path),
-                                    stored=str(sha), recomputed=file_sha256(path))
-        return path, None
+        if file_sha256(path) == sha:
+            return path, path, None
+        copy = _recorded_copy(recorded, scratch)
+        if _same_but_input_path(path, copy):
+            notes.append(f"site config: {str(path)!r} differs from the recorded one only in "
+                         "[input] path; the recorded text was used, the given file only to "
+                         "find the input")
+            return copy, path, None
+        return None, None, Difference("input", "input", column="site config", row=str(path),
+                                      stored=str(sha), recomputed=file_sha256(path))
     path = recorded_path(directory, recorded)
     if _matching(path, sha):
-        return path, None
-    text = recorded.get("text")
-    if isinstance(text, str):
-        import hashlib
-
-        data = text.encode("utf-8")
-        if hashlib.sha256(data).hexdigest() == sha:
-            copy = scratch / (Path(str(recorded.get("path", "site.toml"))).name or "site.toml")
-            copy.write_bytes(data)
-            where = (f"the file at {str(path)!r} is another version" if path is not None
-                     and path.is_file() else f"it is not at {str(path)!r}")
-            notes.append(f"site config: {where}; used the copy of its text recorded in the "
-                         "manifest (SHA-256 checked)")
-            return copy, None
+        return path, path, None
+    copy = _recorded_copy(recorded, scratch)
+    if copy is not None:
+        where = (f"the file at {str(path)!r} is another version" if path is not None
+                 and path.is_file() else f"it is not at {str(path)!r}")
+        notes.append(f"site config: {where}; used the copy of its text recorded in the "
+                     "manifest (SHA-256 checked)")
+        return copy, None, None
     if path is not None and path.is_file():
-        return None, Difference("input", "input", column="site config", row=str(path),
-                                stored=str(sha), recomputed=file_sha256(path))
+        return None, None, Difference("input", "input", column="site config", row=str(path),
+                                      stored=str(sha), recomputed=file_sha256(path))
     raise InputFileError(f"verify: the site config {str(path)!r} recorded in the manifest "
                          "does not exist and the manifest holds no copy of it; give it with "
                          "--config")
@@ -575,12 +612,11 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
         raise InputFileError("verify: the manifest records neither an input file and site "
                              "config (fluxpart run) nor a demo seed (fluxpart demo), so the "
                              "result cannot be recomputed")
-    site_config, changed = _site_config(directory, provenance["site_config"], config_path,
-                                        scratch, notes)
+    site_config, locating, changed = _site_config(directory, provenance["site_config"],
+                                                  config_path, scratch, notes)
     if changed is not None:
         return "run", None, [changed]
-    real_config = None if site_config.parent == scratch else site_config
-    data_path, changed = _input_files(directory, provenance["input"], input_path, real_config)
+    data_path, changed = _input_files(directory, provenance["input"], input_path, locating)
     if changed is not None:
         return "run", None, [changed]
     if provenance.get("settings") == "site config":

@@ -88,7 +88,8 @@ def test_moved_bundle_verifies_without_options(bundle, tmp_path):
 
 
 def test_result_moved_alone_needs_input_and_uses_the_recorded_config(bundle, tmp_path, capsys):
-    """Only the result travelled: exit 2 naming --input; with --input (and --config) exit 0."""
+    """Only the result travelled: exit 2 naming --input; with --input, or a config pointing
+    at the moved input, exit 0; a config with another setting is another config, exit 1."""
     alone = tmp_path / "received" / "out"
     shutil.copytree(bundle / "out", alone)
     inbox = tmp_path / "inbox"
@@ -100,8 +101,13 @@ def test_result_moved_alone_needs_input_and_uses_the_recorded_config(bundle, tmp
     assert main(["verify", str(alone), "--input", str(inbox / "renamed.csv")]) == 0
     out = capsys.readouterr().out
     assert "recorded in the manifest" in out          # the config was rebuilt from its text
-    assert main(["verify", str(alone), "--input", str(inbox / "renamed.csv"),
-                 "--config", str(inbox / "renamed.toml")]) == 0
+    # the auditor's copy of the config points at the moved input: only [input] path differs
+    edited = inbox / "renamed.toml"
+    edited.write_text(edited.read_text().replace('path = "tower.csv"', 'path = "renamed.csv"'))
+    assert main(["verify", str(alone), "--config", str(edited)]) == 0
+    assert "differs from the recorded one only in [input] path" in capsys.readouterr().out
+    edited.write_text(edited.read_text() + "despike_z = 9.0\n")   # a setting: another config
+    assert main(["verify", str(alone), "--config", str(edited)]) == 1
 
 
 def test_another_input_or_config_is_named(copy, capsys):
