@@ -276,7 +276,7 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
         in_month = (months == month) & good_day
         row = {"month_start": month.start_time, "month": month.month,
                "days": int(in_month.sum()), "shift_minutes": np.nan, "correlation": np.nan,
-               "edge_shift_minutes": np.nan, "daylength_rg": np.nan,
+               "edge_shift_minutes": np.nan, "sun_sets": False, "daylength_rg": np.nan,
                "daylength_potential": np.nan, "daylength_flipped": np.nan,
                "rg_daily": np.nan, "potential_daily": np.nan,
                "used": False, "reason": ""}
@@ -321,6 +321,7 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
             _crossings(composite[0.0], interval, EDGE_LEVEL))
         row["edge_shift_minutes"] = float((rg_middle - sun_middle + 720.0) % 1440.0 - 720.0)
         flipped_composite = np.nanmean(np.where(mask, flipped_matrix[in_month], np.nan), axis=0)
+        row["sun_sets"] = bool(np.nanmin(composite[0.0]) < 1.0)
         row["daylength_rg"] = rg_width
         row["daylength_potential"] = sun_width
         row["daylength_flipped"] = _crossings(flipped_composite, interval, EDGE_LEVEL)[1]
@@ -454,7 +455,12 @@ def _daylight_saving(used: pd.DataFrame):
 
 
 def _shifted_run(used: pd.DataFrame, threshold: float):
-    """First and last month and size of a run of 3+ consecutive months shifted alike."""
+    """First and last month and size of a run of 3+ consecutive months shifted alike.
+
+    Only months with a sunrise and a sunset count: under the midnight sun the low sun
+    circles the horizon, and a tilted sensor moves both the peak and the edges.
+    """
+    used = used[used["sun_sets"].astype(bool)]
     peak = used["shift_minutes"].to_numpy()
     edge = used["edge_shift_minutes"].to_numpy()
     with np.errstate(invalid="ignore"):
