@@ -3,7 +3,7 @@
 from pathlib import Path
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
-SHORT_RECORDS = 24 * 2 * 45            # 45 days of half-hours: fast, still partitionable
+SHORT_RECORDS = 24 * 2 * 30            # 30 days of half-hours: fast, still partitionable
 
 
 def make_bundle(folder: Path, records: int = SHORT_RECORDS, extra: str = "",
