@@ -1,4 +1,4 @@
-"""The ``fluxpart`` command line: demo, run, check, verify, report, batch.
+"""The ``fluxpart`` command line: demo, run, check, verify, diff, report, batch.
 
 Every user error (bad config, bad input, too little data) is printed as one
 ``error: ...`` line naming the setting, column or row, with exit status 2; a
