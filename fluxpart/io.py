@@ -750,6 +750,16 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         converted["nee_flag"] = _combine_flags(flags, flag_accept)
         flag_rejected = int(np.nansum(converted["nee_flag"]))
         source_of["nee_flag"] = " + ".join(flag_columns)
+        judged = int(np.isfinite(converted["nee_flag"]).sum())
+        # a flag that rejects most records is more likely a wrong flag_accept than a site
+        # whose own checks discard most of its data (our choice: half)
+        if judged and flag_rejected > 0.5 * judged:
+            flag_values = np.unique(np.concatenate([f[np.isfinite(f)] for f in flags]))[:10]
+            warnings.append(f"nee_flag: {flag_rejected} of {judged} records "
+                            f"({flag_rejected / judged:.0%}) are rejected by "
+                            f"{' + '.join(flag_columns)} with [input] flag_accept = "
+                            f"{list(flag_accept)}; the flags hold {[f'{v:g}' for v in flag_values]}: "
+                            "check which values mean a good record")
     if "vpd" not in converted:
         converted["vpd"] = vpd_from_rh(converted["rh"], converted["tair"])
         derived.append("vpd")

@@ -1285,3 +1285,13 @@ def test_hour_24_in_compact_stamps(tmp_path):
     frame, report = _read(path, time_marks="end", time_format="%Y%m%d%H%M")
     pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
     assert report.stamp_conversions["hour_24"] == 1
+
+
+def test_flag_rejecting_most_records_warns(tmp_path):
+    """A flag_accept that rejects most records (likely the wrong values) is reported."""
+    records = _records()
+    records["qc"] = np.arange(96) % 3
+    _, report = _read(_write(tmp_path / "t.csv", records), columns=MAPPING | {"nee_flag": "qc"},
+                      flag_accept=[2])
+    assert any(w.startswith("nee_flag: 64 of 96 records (67%)") and "flag_accept = [2]" in w
+               for w in report.warnings)
