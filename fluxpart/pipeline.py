@@ -4,6 +4,9 @@ Stages (each a pure function of its own module):
 
 1. solar geometry and the night mask (:mod:`fluxpart.solar`);
 2. screening: plausible ranges, the site's flag, despiking (:mod:`fluxpart.screening`);
+   then, before any fit, the clock and site-geometry check (:mod:`fluxpart.clock`) and
+   the preflight of every stage (:mod:`fluxpart.preflight`): a clock problem (unless
+   ``clock_check`` allows it) or a condition a stage cannot run with stops here;
 3. the u* threshold, detected with its bootstrap distribution or fixed (:mod:`fluxpart.ustar`);
 4. gap filling of the drivers, then of NEE after the u* filter (:mod:`fluxpart.gapfill`);
 5. nighttime and daytime partitioning (:mod:`fluxpart.partition`);
