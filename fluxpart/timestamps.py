@@ -194,6 +194,14 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         raise TimestampError(f"{_time_setting(time_columns)}: stamps in {source!r} carry a UTC "
                              f"offset ({text.iloc[0]!r}), so [input] time_zone = "
                              f"{time_zone!r} is not needed: remove it")
+    if with_offset and time_format.upper() == "ISO8601":
+        naive = ~text.str.contains(_OFFSET_AT_END).to_numpy()
+        if naive.any():
+            first = int(np.flatnonzero(naive)[0])
+            raise TimestampError(
+                f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
+                f"{text.iloc[first]!r} without a UTC offset while other stamps carry one; "
+                f"{int(naive.sum())} such stamp(s): give every stamp its offset")
     parsed = _to_datetime(text, time_format, utc=with_offset)
     failed = parsed.isna().to_numpy()
     is_24 = np.zeros(len(text), dtype=bool)

@@ -12,7 +12,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart.errors import ConfigError, SpacingError
+from fluxpart.errors import ConfigError, SpacingError, TimestampError
 from fluxpart.timestamps import budget_years, check_time_zone, infer_interval, parse_stamps
 
 
@@ -77,3 +77,12 @@ def test_infer_interval():
     assert infer_interval(stamps) == 60
     with pytest.raises(SpacingError, match="most common spacing between stamps is 15"):
         infer_interval(pd.date_range("2021-01-01", periods=10, freq="15min"))
+
+
+def test_mixed_naive_and_offset_stamps_refused():
+    """ISO 8601 stamps of which only some carry an offset cannot be placed in time."""
+    text = pd.Series(["2021-06-01T00:00Z", "2021-06-01T00:30", "2021-06-01T01:00Z"])
+    with pytest.raises(TimestampError, match=r"line 3 of 'f' has stamp '2021-06-01T00:30' without "
+                                        r"a UTC offset"):
+        parse_stamps(text, "ISO8601", time_columns=("t",), source="f", lines=np.arange(3) + 2,
+                     utc_offset=0.0)
