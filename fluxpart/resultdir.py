@@ -62,7 +62,7 @@ from .manifest import (
 from .store import atomic_write_bytes, file_sha256, read_table, write_table
 
 __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_leftovers",
-           "folder_lock", "lock_file", "read_folder", "write_folder"]
+           "folder_lock", "lock_file", "read_folder", "recover_missing", "write_folder"]
 
 #: Seconds a writer waits for another writer of the same folder before giving up.
 DEFAULT_LOCK_TIMEOUT = 600.0
@@ -487,7 +487,7 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
     return problems
 
 
-def _recover_missing(directory: Path) -> None:
+def recover_missing(directory: Path) -> None:
     """If `directory` is gone but a complete retired copy is beside it, move it back."""
     if directory.exists() or not _leftovers(directory, _RETIRED):
         return
@@ -523,7 +523,7 @@ def read_folder(directory) -> tuple[dict, dict]:
         (the message names the first file at fault and how many more there are).
     """
     directory = _absolute(directory)
-    _recover_missing(directory)
+    recover_missing(directory)
     for attempt in range(3):
         before = _identity(directory)
         manifest = read_manifest(directory)

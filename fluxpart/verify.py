@@ -661,9 +661,10 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     FluxpartError
         If the recorded input can no longer be read or processed.
     """
-    from .resultdir import check_folder
+    from .resultdir import check_folder, recover_missing
 
     directory = Path(directory).absolute()
+    recover_missing(directory)            # a write interrupted between its two renames
     manifest = read_manifest(directory)
     for key in ("config", "site", "provenance", "tables"):
         if not isinstance(manifest.get(key), dict):
