@@ -77,6 +77,11 @@ def _blas_libraries() -> list[dict]:
         from threadpoolctl import threadpool_info
     except ImportError:  # pragma: no cover - threadpoolctl is a core dependency
         return []
+    # Load the BLAS of both NumPy and SciPy first: threadpoolctl lists only libraries
+    # already loaded, and the record must not depend on what the caller imported before.
+    import numpy  # noqa: F401
+    import scipy.linalg  # noqa: F401
+
     # The thread count is left out: it differs between the command line and batch
     # workers of one machine (Dask limits it), which would make their manifests differ.
     keys = ("user_api", "internal_api", "prefix", "version", "architecture", "threading_layer")
