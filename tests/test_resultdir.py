@@ -116,6 +116,10 @@ def test_two_writers_at_once_give_one_complete_result(two_configs, tmp_path):
     assert second.wait(timeout=180) == 0, second.stderr.read()
     _check_complete(out, references)
     assert _leftovers(out) == []
+    # the platform a `fluxpart run` process records is the one this process sees
+    from fluxpart.fingerprint import platform_differences, platform_record
+
+    assert platform_differences(read_folder(out)[0]["platform"], platform_record()) == []
 
 
 @pytest.fixture(scope="module")
