@@ -192,15 +192,18 @@ def _command_check(args) -> int:
     problems = [f"{text}{' (run stops)' if refuse else ''}"
                 for text in (verdict.problems if verdict is not None else ())]
     problems += [f"{finding}{' (run stops)' if finding.fatal else ''}" for finding in findings]
+    counts = thresholds = None
     if not any(finding.fatal for finding in findings):
-        counts, thresholds = screening_summary(frame, site_config.site, config)
+        try:
+            counts, thresholds = screening_summary(frame, site_config.site, config)
+        except FluxpartError as error:             # run would stop in the u* stage
+            problems.append(f"u* threshold: {error} (run stops)")
+    if thresholds is not None:
         fallback = sorted(set(thresholds.loc[thresholds["source"] == "fallback", "year"]))
         if fallback and not any(f.stage == "u* threshold" for f in findings):
             problems.append(f"u* threshold: not detectable in {', '.join(map(str, fallback))}; "
                             f"the fixed ustar_threshold = {config.ustar_threshold:g} m s-1 "
                             "would be used there")
-    else:
-        counts = thresholds = None
     print(format_check(site_config.site, report, table, problems=problems))
     print(_format_clock(verdict))
     if counts is not None:
