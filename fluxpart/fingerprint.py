@@ -19,6 +19,7 @@ name or a time, so they do not make two runs of one machine differ.
 from __future__ import annotations
 
 import hashlib
+import json
 import platform
 from functools import lru_cache
 from pathlib import Path
@@ -86,7 +87,9 @@ def _blas_libraries() -> list[dict]:
     # workers of one machine (Dask limits it), which would make their manifests differ.
     keys = ("user_api", "internal_api", "prefix", "version", "architecture", "threading_layer")
     found = [{key: info.get(key) for key in keys} for info in threadpool_info()]
-    return sorted(found, key=lambda entry: (str(entry["user_api"]), str(entry["prefix"])))
+    # sorted on every field: two libraries may share a prefix (NumPy's and SciPy's OpenBLAS)
+    # and their load order must not change the record
+    return sorted(found, key=lambda entry: json.dumps(entry, sort_keys=True, default=str))
 
 
 def platform_record() -> dict:
