@@ -194,6 +194,9 @@ def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: 
     present = np.abs(nee[np.isfinite(nee)])
     if present.size < 48:
         return None, None
+    if np.ptp(nee[np.isfinite(nee)]) == 0.0:
+        # A constant series says nothing about its unit; the preflight names it as constant.
+        return None, None
     p99 = float(np.percentile(present, 99))
     noise = _night_noise(nee, converted, potential)
     # The random error of half-hourly eddy-covariance CO2 fluxes is about 0.3-1 µmol m-2

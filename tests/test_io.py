@@ -1295,3 +1295,13 @@ def test_flag_rejecting_most_records_warns(tmp_path):
                       flag_accept=[2])
     assert any(w.startswith("nee_flag: 64 of 96 records (67%)") and "flag_accept = [2]" in w
                for w in report.warnings)
+
+
+def test_constant_nee_is_not_taken_for_a_unit_mixup(tmp_path):
+    """A constant NEE column (a logger stuck at one value) says nothing about its unit:
+    the reader raises no mg CO2 suspicion and leaves the finding to the preflight."""
+    records, site = _climate("grassland")
+    records["co2_flux"] = 0.01
+    frame, report = _read(_write(tmp_path / "t.csv", records), site=site)
+    assert (frame["nee"] == 0.01).all()
+    assert not [w for w in report.warnings if w.startswith("nee")]
