@@ -700,13 +700,29 @@ def _night_data(nee, ustar, tair, is_night, seasons, *, need_tair) -> _NightData
                       tair=temperature[order], group=record_group[order], groups=groups)
 
 
-def _class_positions(values, group, n_groups, classes):
+def _dense_ranks(values) -> np.ndarray:
+    """Rank of each value among the distinct values (equal values, equal rank) [int64]."""
+    return np.unique(values, return_inverse=True)[1].astype(np.int64).reshape(-1)
+
+
+def _class_positions(values, group, n_groups, classes, ranks=None):
     """Class (0..classes-1) of each record within its group: equal-size classes by `values`.
 
     Records are sorted by group, then value (stable, so ties keep record order);
     class ``floor(rank * classes / size)`` gives sizes that differ by at most one.
+    The order is that of ``np.lexsort((values, group))``. Given `ranks` (the
+    :func:`_dense_ranks` of `values`, e.g. taken from the records a bootstrap draw
+    resamples), it is one stable sort of the integer key ``group * R + rank``;
+    otherwise two stable sorts, by value, then by group in the narrowest integer
+    type. Both orders are the same permutation.
     """
-    order = np.lexsort((values, group))
+    if ranks is not None:
+        width = int(ranks.max()) + 1 if ranks.size else 1
+        order = np.argsort(group.astype(np.int64) * width + ranks, kind="stable")
+    else:
+        order = np.argsort(values, kind="stable")
+        narrow = np.min_scalar_type(max(n_groups - 1, 0))
+        order = order[np.argsort(group[order].astype(narrow, copy=False), kind="stable")]
     size = np.bincount(group, minlength=n_groups)
     start = np.concatenate(([0], np.cumsum(size)[:-1]))
     sorted_group = group[order]
@@ -722,16 +738,21 @@ def _cell_means(values, cell, n_cells):
     return sums, counts
 
 
-def _moving_point_core(nee, ustar, tair, group, groups, options):
-    """Moving point test vectorised over groups and classes (see moving_point_threshold)."""
+def _moving_point_core(nee, ustar, tair, group, groups, options, ranks=None):
+    """Moving point test vectorised over groups and classes (see moving_point_threshold).
+
+    `ranks`, optional: ``{"tair": ..., "ustar": ...}`` dense ranks of those values
+    (see :func:`_class_positions`); the same result, sorted faster.
+    """
+    ranks = ranks or {}
     n_groups = len(groups)
     n_t, n_u = options["temperature_classes"], options["ustar_classes"]
     size = np.bincount(group, minlength=n_groups)
 
-    t_class = _class_positions(tair, group, n_groups, n_t)
+    t_class = _class_positions(tair, group, n_groups, n_t, ranks.get("tair"))
     stratum = group * n_t + t_class
     n_strata = n_groups * n_t
-    u_class = _class_positions(ustar, stratum, n_strata, n_u)
+    u_class = _class_positions(ustar, stratum, n_strata, n_u, ranks.get("ustar"))
     cell = stratum * n_u + u_class
     n_cells = n_strata * n_u
 
@@ -776,17 +797,21 @@ def _moving_point_core(nee, ustar, tair, group, groups, options):
             "stratum_used": used, "stratum_threshold": class_threshold}
 
 
-def _change_point_core(nee, ustar, tair, group, groups, options, *, statistics):
-    """Change-point detection vectorised over strata (see change_point_threshold)."""
+def _change_point_core(nee, ustar, tair, group, groups, options, *, statistics, ranks=None):
+    """Change-point detection vectorised over strata (see change_point_threshold).
+
+    `ranks` as in :func:`_moving_point_core`.
+    """
+    ranks = ranks or {}
     n_groups = len(groups)
     n_t, n_bins, edge = options["temperature_classes"], options["bins"], options["edge_bins"]
     size = np.bincount(group, minlength=n_groups)
-    t_class = (_class_positions(tair, group, n_groups, n_t) if n_t > 1
+    t_class = (_class_positions(tair, group, n_groups, n_t, ranks.get("tair")) if n_t > 1
                else np.zeros(len(group), dtype=np.int64))
     stratum = group * n_t + t_class
     n_strata = n_groups * n_t
     stratum_count = np.bincount(stratum, minlength=n_strata)
-    bin_of = _class_positions(ustar, stratum, n_strata, n_bins)
+    bin_of = _class_positions(ustar, stratum, n_strata, n_bins, ranks.get("ustar"))
     cell = stratum * n_bins + bin_of
     nee_sum, count = _cell_means(nee, cell, n_strata * n_bins)
     ustar_sum, _ = _cell_means(ustar, cell, n_strata * n_bins)
@@ -1015,6 +1040,8 @@ def _bootstrap(data: _NightData, detector, options, draws, seed) -> pd.DataFrame
     start = np.concatenate(([0], np.cumsum(size)[:-1]))
     n = len(data.group)
     rng = np.random.default_rng(seed)
+    # ranks of the original records, once: a draw's records sort by these integers
+    data_ranks = {"tair": _dense_ranks(data.tair), "ustar": _dense_ranks(data.ustar)}
     rows = []
     for first in range(0, draws, _DRAWS_PER_CHUNK):
         chunk = min(_DRAWS_PER_CHUNK, draws - first)
@@ -1026,12 +1053,13 @@ def _bootstrap(data: _NightData, detector, options, draws, seed) -> pd.DataFrame
         resampled = _NightData(nee=data.nee[picked], ustar=data.ustar[picked],
                                tair=data.tair[picked], group=group,
                                groups=pd.concat([groups] * chunk, ignore_index=True))
+        ranks = {name: values[picked] for name, values in data_ranks.items()}
         if detector == "moving_point":
             core = _moving_point_core(resampled.nee, resampled.ustar, resampled.tair, group,
-                                      resampled.groups, options)
+                                      resampled.groups, options, ranks)
         else:
             core = _change_point_core(resampled.nee, resampled.ustar, resampled.tair, group,
-                                      resampled.groups, options, statistics=False)
+                                      resampled.groups, options, statistics=False, ranks=ranks)
         floor = options["min_threshold"]
         draw = first + np.repeat(np.arange(chunk), n_groups)
         rows.append((draw, np.tile(groups["year"].to_numpy(), chunk),

@@ -315,3 +315,29 @@ def test_records_per_class_setting_is_checked():
     seasons = assign_seasons(index, 48.0)
     with pytest.raises(ConfigError, match="min_records_per_class"):
         moving_point_threshold(nee, friction, tair, is_night, seasons, min_records_per_class=0)
+
+
+def test_class_positions_follow_the_lexsort_order_with_and_without_ranks():
+    """Equal-size classes by value within groups: the order is NumPy's ``lexsort``.
+
+    Reference: ``numpy.lexsort((values, group))`` (stable, ties in record order), with
+    class ``floor(rank * classes / size)``. The bootstrap passes dense ranks of the
+    resampled records instead of sorting floats; both paths must give the same
+    classes, also with ties, -0.0 and NaN.
+    """
+    rng = np.random.default_rng(5)
+    base = np.round(rng.normal(0.0, 1.0, 400), 1)          # many ties
+    base[:3] = [0.0, -0.0, np.nan]
+    picked = rng.integers(0, base.size, 3000)
+    values = base[picked]
+    group = rng.integers(0, 37, values.size)
+    order = np.lexsort((values, group))
+    size = np.bincount(group, minlength=37)
+    start = np.concatenate(([0], np.cumsum(size)[:-1]))
+    rank = np.arange(values.size) - start[group[order]]
+    expected = np.empty(values.size, dtype=np.int64)
+    expected[order] = rank * 5 // size[group[order]]
+    plain = ustar._class_positions(values, group, 37, 5)
+    ranked = ustar._class_positions(values, group, 37, 5, ustar._dense_ranks(base)[picked])
+    np.testing.assert_array_equal(plain, expected)
+    np.testing.assert_array_equal(ranked, expected)
