@@ -4,12 +4,14 @@ A network file (``SITES.toml``, a format of fluxpart's own) lists site configs;
 each site becomes one Dask task that runs
 :func:`fluxpart.pipeline.process_site_config` and writes its result folder
 exactly as ``fluxpart run`` does (:meth:`fluxpart.pipeline.Result.write`).
-The client then writes two network tables:
+The client then writes the network tables:
 
-- ``<out>/network_annual/`` — every site's annual budget as one Parquet dataset
+- ``<out>/network_annual/``, ``<out>/network_monthly/`` and ``<out>/network_daily/`` —
+  every site's annual, monthly and daily budgets, each as one Parquet dataset
   partitioned by site (``site=<key>/part-0.parquet``), readable with
   ``pyarrow.dataset.dataset(path, partitioning="hive")`` or
-  ``pandas.read_parquet(path)``, which restore the ``site`` column;
+  ``pandas.read_parquet(path)``, which restore the ``site`` column, or with
+  :func:`read_network`;
 - ``<out>/failures.parquet`` — one row per site that failed: its key, config
   path, error class and message.
 
@@ -65,6 +67,7 @@ __all__ = [
     "SiteOutcome",
     "command_batch",
     "is_up_to_date",
+    "read_network",
     "read_network_annual",
     "read_sites_file",
     "run_batch",
@@ -73,13 +76,18 @@ __all__ = [
 
 #: Folder of the network's annual dataset inside the batch output folder.
 NETWORK_DATASET = "network_annual"
+#: Folder of each network dataset (budget table -> folder) inside the batch output folder.
+NETWORK_DATASETS = {"annual": NETWORK_DATASET, "monthly": "network_monthly",
+                    "daily": "network_daily"}
+#: Index column of each budget table, the network dataset's sort key after ``site``.
+_PERIOD_COLUMNS = {"annual": "year", "monthly": "month", "daily": "date"}
 #: File of the failures table inside the batch output folder.
 FAILURES_FILE = "failures.parquet"
 
 _BATCH_KEYS = ("out", "sites")
 _DEFAULT_WORKERS = 2
 _CONNECT_TIMEOUT_SECONDS = 10
-_RESERVED_KEYS = {NETWORK_DATASET, FAILURES_FILE}
+_RESERVED_KEYS = {*NETWORK_DATASETS.values(), FAILURES_FILE}
 _SITE_COLUMNS = {
     "site_name": ("", "the site's [site] name"),
     "latitude": ("degree_north", "latitude of the tower, north positive"),
@@ -437,23 +445,31 @@ def _failure(common: dict, error: BaseException) -> SiteOutcome:
 
 # --------------------------------------------------------------------------- network tables
 
-def _arrow_annual(outcome: SiteOutcome) -> pa.Table:
-    flat = outcome.annual.reset_index()
+def _site_table(outcome: SiteOutcome, table: str) -> pd.DataFrame:
+    """The site's budget `table` (``annual``, ``monthly`` or ``daily``) as written."""
+    if table == "annual":
+        return outcome.annual
+    directory = Path(outcome.directory)
+    return read_table(directory / read_manifest(directory)["tables"][table]["file"])
+
+
+def _arrow_site(outcome: SiteOutcome, table: str = "annual") -> pa.Table:
+    flat = _site_table(outcome, table).reset_index()
     site = outcome.site or {}
     for position, (column, name) in enumerate(_SITE_FIELDS.items(), start=1):
         flat.insert(position, column, site.get(name))
     return pa.Table.from_pandas(flat, preserve_index=False).replace_schema_metadata(None)
 
 
-def _unify(tables: list[pa.Table]) -> list[pa.Table]:
+def _unify(tables: list[pa.Table], name: str = "annual") -> list[pa.Table]:
     """Give every site's table the union of columns (nulls where a site lacks one)."""
     schema = pa.unify_schemas([table.schema for table in tables], promote_options="permissive")
-    units = units_for_table("annual", schema.names)
+    units = units_for_table(name, schema.names)
     units.update(_SITE_COLUMNS)
     fields = [pa.field(f.name, f.type, metadata={b"unit": units[f.name][0].encode(),
                                                  b"description": units[f.name][1].encode()})
               for f in schema]
-    meta = {b"fluxpart": json.dumps({"table": NETWORK_DATASET, "partitioning": "site"},
+    meta = {b"fluxpart": json.dumps({"table": NETWORK_DATASETS[name], "partitioning": "site"},
                                     sort_keys=True).encode()}
     schema = pa.schema(fields, metadata=meta)
     out = []
@@ -482,23 +498,24 @@ def _replace_folder(staging: Path, target: Path) -> None:
 
 
 def _write_network(outcomes, out: Path) -> pd.DataFrame:
-    """Write the network dataset of the sites that succeeded; return it as one frame."""
+    """Write the network datasets of the sites that succeeded; return the annual one."""
     done = [o for o in outcomes if o.status != "failed"]
-    staging = Path(tempfile.mkdtemp(prefix=f".{NETWORK_DATASET}.", dir=out))
-    try:
-        tables = _unify([_arrow_annual(o) for o in done]) if done else []
-        for outcome, table in zip(done, tables, strict=True):
-            atomic_write_bytes(staging / f"site={outcome.key}" / "part-0.parquet",
-                               _parquet_bytes(table))
-        _replace_folder(staging, out / NETWORK_DATASET)
-    except BaseException:
-        shutil.rmtree(staging, ignore_errors=True)
-        raise
+    for name, folder in NETWORK_DATASETS.items():
+        staging = Path(tempfile.mkdtemp(prefix=f".{folder}.", dir=out))
+        try:
+            tables = _unify([_arrow_site(o, name) for o in done], name) if done else []
+            for outcome, table in zip(done, tables, strict=True):
+                atomic_write_bytes(staging / f"site={outcome.key}" / "part-0.parquet",
+                                   _parquet_bytes(table))
+            _replace_folder(staging, out / folder)
+        except BaseException:
+            shutil.rmtree(staging, ignore_errors=True)
+            raise
     return read_network_annual(out)
 
 
 def read_network_annual(out) -> pd.DataFrame:
-    """Read a batch's network dataset back as one DataFrame.
+    """Read a batch's annual network dataset back as one DataFrame.
 
     Parameters
     ----------
@@ -509,12 +526,43 @@ def read_network_annual(out) -> pd.DataFrame:
     -------
     pandas.DataFrame
         One row per site and year: ``site`` (the site key, from the partition
-        folder), ``year``, ``site_name``, ``latitude``, ``longitude`` and the annual
-        budget columns [g C m-2 per year], sorted by site and year.
+        folder), ``year``, ``site_name``, ``latitude``, ``longitude``,
+        ``utc_offset`` and the annual budget columns [g C m-2 per year], sorted by
+        site and year.
+    """
+    return read_network(out, "annual")
+
+
+def read_network(out, table: str = "annual") -> pd.DataFrame:
+    """Read one of a batch's network datasets back as one DataFrame.
+
+    Parameters
+    ----------
+    out : str or path-like
+        The batch output folder.
+    table : {"annual", "monthly", "daily"}
+        Which budget table; the dataset lives in ``out/network_<table>/``.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per site and period: ``site`` (the site key, from the partition
+        folder), the period (``year``, ``month`` or ``date``), the site columns
+        and the budget columns [g C m-2 per period], sorted by site and period.
+
+    Raises
+    ------
+    ConfigError
+        If `table` is not one of the three budget tables.
+    InputFileError
+        If `out` holds no such dataset.
     """
     import pyarrow.dataset as ds
 
-    path = Path(out) / NETWORK_DATASET
+    if table not in NETWORK_DATASETS:
+        raise ConfigError(f"network table {table!r}: expected one of "
+                          f"{', '.join(map(repr, NETWORK_DATASETS))}")
+    path = Path(out) / NETWORK_DATASETS[table]
     if not path.is_dir():
         raise InputFileError(f"{str(path)!r} does not exist: {str(out)!r} is not a batch "
                              "output folder")
@@ -527,7 +575,8 @@ def read_network_annual(out) -> pd.DataFrame:
                          partition_base_dir=str(path))
     frame = dataset.to_table().to_pandas()
     ordered = ["site", *[c for c in frame.columns if c != "site"]]
-    return frame[ordered].sort_values(["site", "year"], kind="stable").reset_index(drop=True)
+    return frame[ordered].sort_values(["site", _PERIOD_COLUMNS[table]],
+                                      kind="stable").reset_index(drop=True)
 
 
 def _write_failures(outcomes, out: Path) -> pd.DataFrame:
@@ -723,7 +772,8 @@ def _summary(report: BatchReport) -> str:
                       index=False, float_format=lambda v: f"{v:9.1f}",
                       # u* thresholds in m s-1 need their three decimals (0.177, not 0.2)
                       formatters={"ustar_threshold": lambda v: f"{v:9.3f}"})]
-    lines += ["", f"Wrote {report.out}/ (one result folder per site, {NETWORK_DATASET}/, "
+    datasets = ", ".join(f"{folder}/" for folder in NETWORK_DATASETS.values())
+    lines += ["", f"Wrote {report.out}/ (one result folder per site, {datasets} "
               f"{FAILURES_FILE})", f"Caution: {CAUTION}"]
     return "\n".join(lines)
 

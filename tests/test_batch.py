@@ -253,7 +253,6 @@ def test_batch_is_byte_identical_to_fluxpart_run(towers, tmp_path, capsys):
             if name == "run-log.json":        # who/when/where: the one file meant to differ
                 continue
             assert from_batch[name][0] == from_run[name][0], f"{key}/{name} differs"
-
         manifest = batch.read_manifest(out / key)
         for entry in manifest["tables"].values():
             # hashlib is the reference for the recorded SHA-256 of each table
@@ -393,3 +392,20 @@ def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster
     for value in report.network["ustar_threshold"].dropna():
         assert f"{value:.3f}" in summary
     assert report.failures.empty and pq.read_table(report.out / "failures.parquet").num_rows == 0
+
+    # issue 15: the monthly and daily budgets are network datasets too, read back by
+    # pyarrow.dataset (the reference reader of Hive partitioning) and by read_network
+    for table, period in (("monthly", "month"), ("daily", "date")):
+        folder = report.out / batch.NETWORK_DATASETS[table]
+        dataset = ds.dataset(folder, format="parquet", partitioning="hive").to_table().to_pandas()
+        network = batch.read_network(report.out, table)
+        assert len(dataset) == len(network)
+        assert pq.read_schema(folder / "site=tower0" / "part-0.parquet").field(
+            "nee").metadata[b"unit"] == b"g m-2"
+        for key in configs:
+            expected = read_table(report.out / key / f"{table}.parquet").reset_index()
+            got = network[network["site"] == key].reset_index(drop=True)
+            assert got[period].is_monotonic_increasing
+            pd.testing.assert_frame_equal(got[expected.columns], expected, check_dtype=False)
+    with pytest.raises(ConfigError, match="network table 'weekly'"):
+        batch.read_network(report.out, "weekly")
