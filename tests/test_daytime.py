@@ -493,3 +493,26 @@ def test_daytime_settings_are_checked_in_config():
                        ("daytime_night_in_fit", "yes")):
         with pytest.raises(ConfigError, match=rf"\[processing\] {key}"):
             Config.from_mapping({key: value})
+
+
+def test_standard_errors_survive_a_window_with_a_non_finite_jacobian():
+    """A window whose Jacobian overflows gets no standard errors instead of stopping the run
+    (regression, issue 11: 'SVD did not converge' on a generated C4 crop site-year)."""
+    from fluxpart.partition import daytime
+
+    rng = np.random.default_rng(3)
+    rg = np.tile(np.linspace(20.0, 900.0, 40), (2, 1))
+    windows = {"rg": rg, "vpd": np.full_like(rg, 5.0), "factor": np.ones_like(rg),
+               "weight": np.ones_like(rg)}
+    theta = np.array([[0.05, 30.0, 0.0, 3.0], [0.05, 30.0, 0.0, 3.0]])
+    modelled = 3.0 - light_response(rg, windows["vpd"], 0.05, 30.0, 0.0, vpd0=10.0)
+    windows["nee"] = modelled + rng.normal(0.0, 0.5, rg.shape)
+    windows["weight"][1, 5] = np.inf              # the second window's Jacobian is not finite
+    mask = np.ones(rg.shape, dtype=bool)
+    fixed = np.zeros(theta.shape, dtype=bool)
+    fixed[:, 2] = True                            # k fixed: no VPD limitation below VPD0
+    lower = np.array([0.0, 0.0, 0.0, 0.0])
+    upper = np.array([0.22, 250.0, 1.0, 100.0])
+    errors, _ = daytime._standard_errors(theta, fixed, lower, upper, windows, mask, 10.0)
+    assert np.isfinite(errors[0, [0, 1, 3]]).all()
+    assert not np.isfinite(errors[1]).any()

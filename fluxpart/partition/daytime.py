@@ -879,10 +879,16 @@ def _standard_errors(theta, fixed, lower, upper, windows, mask, vpd0):
     identity = np.eye(4)
     # Invert the correlation form D^-1/2 N D^-1/2 so that the very different
     # scales of the parameters do not count as ill-conditioning.
-    scale = np.where(free, 1.0 / np.sqrt(np.where(diagonal > 0, diagonal, 1.0)), 0.0)
-    correlation = normal * scale[:, :, None] * scale[:, None, :]
+    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
+        scale = np.where(free, 1.0 / np.sqrt(np.where(diagonal > 0, diagonal, 1.0)), 0.0)
+        correlation = normal * scale[:, :, None] * scale[:, None, :]
     correlation = correlation + (~free)[:, :, None] * identity
-    well_posed = np.linalg.cond(correlation) < _MAX_CONDITION
+    # A window whose Jacobian holds non-finite values (an overflowing exponent at a
+    # parameter far from its data) has no standard errors; np.linalg.cond cannot take it.
+    finite = np.isfinite(correlation).all(axis=(1, 2))
+    well_posed = np.zeros(len(correlation), dtype=bool)
+    if finite.any():
+        well_posed[finite] = np.linalg.cond(correlation[finite]) < _MAX_CONDITION
     inverse = np.full_like(correlation, np.nan)
     if well_posed.any():
         inverse[well_posed] = (np.linalg.inv(correlation[well_posed])
