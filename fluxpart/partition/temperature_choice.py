@@ -1,0 +1,156 @@
+"""Choice of the temperature that drives Lloyd–Taylor respiration, from the night data.
+
+Ecosystem respiration is mostly soil respiration, and Lloyd & Taylor (1994)
+fitted their equation to soil respiration against soil temperature; where the
+canopy and litter dominate, air temperature can be the better driver. Which
+one a site needs is an empirical question the night NEE answers: at night NEE
+is Reco, so the temperature whose Lloyd–Taylor fit explains the measured,
+u*-filtered night NEE better is the better driver (Reichstein et al. 2005,
+section 2.3, compared drivers by the fit of night data (m)).
+
+Criterion: the whole nighttime method (E0 in short windows, Rref in 4-day
+windows) is fitted once with each temperature; both fits have the same
+number of parameters, so the Bayesian information criterion reduces to
+ΔBIC = n ln(SSR_tsoil / SSR_tair) over the n night records both cover
+(Schwarz 1978). Soil temperature is chosen when it leaves the smaller sum of
+squared residuals (ΔBIC < 0); a tie, a failed soil-temperature fit or too few
+shared records keep air temperature, the temperature every tower measures.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import InsufficientDataError
+from ..uncertainty import driver_weight
+from .nighttime import partition_nighttime
+
+MIN_SHARED_RECORDS = 10
+"""Fewest night records both fits must cover for a comparison (as in
+:func:`fluxpart.uncertainty.driver_weight`)."""
+
+
+@dataclass(frozen=True)
+class TemperatureChoice:
+    """Outcome of :func:`choose_respiration_temperature`.
+
+    Attributes
+    ----------
+    driver : str
+        ``"tair"`` or ``"tsoil"``.
+    reason : str
+        One sentence on why (for the run's notes).
+    ssr : dict
+        Sum of squared night residuals per candidate [(µmol m-2 s-1)²] on the
+        shared records; NaN for a candidate whose fit failed.
+    records : int
+        Shared night records n.
+    delta_bic : float
+        n ln(SSR_tsoil / SSR_tair); negative favours soil temperature; NaN
+        when not compared.
+    tsoil_weight : float
+        Posterior weight of soil temperature under equal priors,
+        1 / (1 + exp(ΔBIC / 2)); NaN when not compared.
+    """
+
+    driver: str
+    reason: str
+    ssr: dict
+    records: int
+    delta_bic: float
+    tsoil_weight: float
+
+    def to_dict(self) -> dict:
+        """Plain values for the provenance record."""
+        return {"setting": "auto", "chosen": self.driver, "reason": self.reason,
+                "criterion": "BIC of the nighttime Lloyd–Taylor fit to measured night NEE",
+                "ssr": {name: _plain(value) for name, value in self.ssr.items()},
+                "records": int(self.records), "delta_bic_tsoil_minus_tair":
+                    _plain(self.delta_bic), "tsoil_weight": _plain(self.tsoil_weight)}
+
+
+def _plain(value: float):
+    return None if not np.isfinite(value) else float(value)
+
+
+def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
+                                   **nighttime_settings) -> TemperatureChoice:
+    """Pick air or soil temperature as the respiration driver by the night fit.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Interval starts, local standard time.
+    nee_measured : array_like
+        Measured NEE after screening and the u* filter [µmol m-2 s-1]; NaN
+        where not measured or rejected.
+    tair : array_like
+        Measured air temperature [°C].
+    tsoil : array_like or None
+        Measured soil temperature [°C]; None when the input has none.
+    is_night : array_like of bool
+        Night records.
+    **nighttime_settings
+        Keyword settings of :func:`fluxpart.partition.nighttime.partition_nighttime`
+        (window lengths, minimum counts, E0 bounds and fall-back).
+
+    Returns
+    -------
+    TemperatureChoice
+        The driver, the criterion values and a one-sentence reason.
+
+    Raises
+    ------
+    InsufficientDataError
+        When even the air-temperature fit fails (the run cannot partition).
+
+    Notes
+    -----
+    Each candidate's Reco is evaluated on its *measured* temperature, so only
+    records with both temperatures measured are compared. Night residuals are
+    autocorrelated, so the weight overstates the evidence (see
+    :func:`fluxpart.uncertainty.driver_weight`); the choice itself only depends
+    on which sum of squares is smaller.
+
+    References
+    ----------
+    Lloyd, J. & Taylor, J. A. (1994). On the temperature dependence of soil
+    respiration. Functional Ecology 8:315–323.
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439.
+    Schwarz, G. (1978). Estimating the dimension of a model. Annals of
+    Statistics 6:461–464.
+    """
+    nee = np.asarray(nee_measured, dtype=float)
+    night = np.asarray(is_night, dtype=bool)
+    if tsoil is None:
+        return TemperatureChoice("tair", "the input has no soil temperature",
+                                 {"tair": np.nan, "tsoil": np.nan}, 0, np.nan, np.nan)
+    reco = {"tair": _night_reco(index, nee, tair, night, "tair", nighttime_settings)}
+    try:
+        reco["tsoil"] = _night_reco(index, nee, tsoil, night, "tsoil", nighttime_settings)
+    except InsufficientDataError as error:
+        return TemperatureChoice("tair", f"the soil-temperature fit failed ({error})",
+                                 {"tair": np.nan, "tsoil": np.nan}, 0, np.nan, np.nan)
+    shared = night & np.isfinite(nee) & np.isfinite(reco["tair"]) & np.isfinite(reco["tsoil"])
+    count = int(shared.sum())
+    ssr = {name: float(np.sum(np.square(nee[shared] - values[shared])))
+           for name, values in reco.items()}
+    if count < MIN_SHARED_RECORDS or min(ssr.values()) <= 0:
+        return TemperatureChoice("tair", f"only {count} night records have both temperatures",
+                                 ssr, count, np.nan, np.nan)
+    delta_bic = count * float(np.log(ssr["tsoil"] / ssr["tair"]))
+    weight = driver_weight(nee, shared, reco["tair"], reco["tsoil"])
+    driver = "tsoil" if delta_bic < 0 else "tair"
+    name = {"tair": "air", "tsoil": "soil"}[driver]
+    reason = (f"{name} temperature explains the measured night NEE better "
+              f"(ΔBIC soil - air = {delta_bic:.1f} over {count} records)")
+    return TemperatureChoice(driver, reason, ssr, count, delta_bic, weight)
+
+
+def _night_reco(index, nee, temperature, night, name, settings) -> np.ndarray:
+    """Nighttime-method Reco on the measured temperature (NaN where it is missing)."""
+    temperature = np.asarray(temperature, dtype=float)
+    return partition_nighttime(index, nee, nee, temperature, temperature, night,
+                               respiration_driver=name, **settings).reco

@@ -1,0 +1,114 @@
+"""Tests of fluxpart.partition.temperature_choice (respiration_driver = "auto").
+
+External facts: the Lloyd & Taylor (1994) eq. 11 with Tref = 283.15 K and
+T0 = 227.13 K, written out here independently of fluxpart; the Bayesian
+information criterion of Schwarz (1978) for two least-squares models with equal
+parameter counts, ΔBIC = n ln(SSR_2 / SSR_1), and its equal-prior posterior
+weight 1 / (1 + exp(ΔBIC / 2)) (Burnham & Anderson 2002, ch. 6). Known-truth
+recovery tests use invented weather (the only place invented data is used).
+"""
+
+import math
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.config import Config
+from fluxpart.errors import ConfigError
+from fluxpart.partition.temperature_choice import choose_respiration_temperature
+
+
+def _eq11(temperature_celsius, rref, e0):
+    """Lloyd & Taylor (1994) eq. 11, written out independently of fluxpart."""
+    kelvin = np.asarray(temperature_celsius) + 273.15
+    return rref * np.exp(e0 * (1.0 / (283.15 - 227.13) - 1.0 / (kelvin - 227.13)))
+
+
+def _weather(seed=0, days=120):
+    """Invented half-hourly air and soil temperature over `days` in spring.
+
+    Soil temperature follows air temperature damped and lagged, as heat
+    conduction into the soil does (diel amplitude a third, peak 4 h later, slow
+    synoptic swings damped less than the diel cycle).
+    """
+    rng = np.random.default_rng(seed)
+    index = pd.date_range("2021-03-01", periods=days * 48, freq="30min")
+    elapsed = np.asarray((index - index[0]) / pd.Timedelta(days=1))
+    hour = index.hour.to_numpy() + index.minute.to_numpy() / 60.0
+    synoptic = pd.Series(rng.normal(0.0, 1.0, len(index))).rolling(
+        144, min_periods=1).mean().to_numpy() * 25.0
+    season = 2.0 + 0.12 * elapsed
+    tair = season + synoptic + 5.0 * np.sin(2 * np.pi * (hour - 9.0) / 24.0)
+    tsoil = (season + 0.5 * pd.Series(synoptic).shift(48).bfill().to_numpy()
+             + 1.6 * np.sin(2 * np.pi * (hour - 13.0) / 24.0))
+    is_night = (hour < 6.0) | (hour >= 19.0)
+    return rng, index, tair, tsoil, is_night
+
+
+def _night_nee(rng, index, planted_temperature, is_night, noise=0.3, measured_fraction=0.5):
+    """Measured night NEE = planted Lloyd–Taylor Reco (Rref 2, E0 220 K) + noise."""
+    elapsed = np.asarray((index - index[0]) / pd.Timedelta(days=1))
+    rref = 2.0 + 0.4 * np.sin(2 * np.pi * elapsed / 60.0)
+    reco = _eq11(planted_temperature, rref, 220.0)
+    measured = is_night & (rng.random(len(index)) < measured_fraction)
+    return np.where(measured, reco + rng.normal(0.0, noise, len(index)), np.nan)
+
+
+@pytest.mark.parametrize("planted", ["tsoil", "tair"])
+def test_the_planted_temperature_is_recovered(planted):
+    """Known truth: respiration planted on one temperature; that one is chosen."""
+    rng, index, tair, tsoil, is_night = _weather(seed=1)
+    nee = _night_nee(rng, index, {"tair": tair, "tsoil": tsoil}[planted], is_night)
+    choice = choose_respiration_temperature(index, nee, tair, tsoil, is_night)
+    assert choice.driver == planted
+    other = {"tair": "tsoil", "tsoil": "tair"}[planted]
+    assert choice.ssr[planted] < choice.ssr[other]
+    assert choice.records > 500
+    record = choice.to_dict()
+    assert record["chosen"] == planted and record["setting"] == "auto"
+    assert set(record["ssr"]) == {"tair", "tsoil"}
+
+
+def test_criterion_is_the_bic_of_the_lloyd_taylor_fit():
+    """Noise-free night NEE that follows Lloyd & Taylor (1994) eq. 11 exactly on soil
+    temperature is fitted almost perfectly with soil temperature; ΔBIC and the weight
+    are Schwarz's (1978) criterion computed from the reported sums of squares."""
+    rng, index, tair, tsoil, is_night = _weather(seed=2)
+    nee = _night_nee(rng, index, tsoil, is_night, noise=0.0)
+    choice = choose_respiration_temperature(index, nee, tair, tsoil, is_night)
+    assert choice.driver == "tsoil"
+    night_variance = np.nanvar(nee[is_night]) * choice.records
+    assert choice.ssr["tsoil"] < 1e-3 * night_variance   # eq. 11 reproduced
+    assert choice.ssr["tair"] > 10 * choice.ssr["tsoil"]
+    expected = choice.records * math.log(choice.ssr["tsoil"] / choice.ssr["tair"])
+    assert choice.delta_bic == pytest.approx(expected, rel=1e-9)
+    assert choice.tsoil_weight == pytest.approx(1.0 / (1.0 + math.exp(expected / 2)), abs=1e-12)
+
+
+def test_without_soil_temperature_air_temperature_is_used():
+    """No tsoil column: the fallback is air temperature, no criterion values."""
+    rng, index, tair, _, is_night = _weather(seed=3, days=60)
+    nee = _night_nee(rng, index, tair, is_night)
+    choice = choose_respiration_temperature(index, nee, tair, None, is_night)
+    assert choice.driver == "tair"
+    assert "no soil temperature" in choice.reason
+    assert choice.to_dict()["delta_bic_tsoil_minus_tair"] is None
+
+
+def test_a_soil_temperature_that_cannot_be_fitted_falls_back_to_air():
+    """Soil temperature measured on too few nights: air temperature, with the reason."""
+    rng, index, tair, tsoil, is_night = _weather(seed=4, days=60)
+    nee = _night_nee(rng, index, tair, is_night)
+    sparse = np.full(len(index), np.nan)
+    sparse[:40] = tsoil[:40]
+    choice = choose_respiration_temperature(index, nee, tair, sparse, is_night)
+    assert choice.driver == "tair"
+    assert "soil-temperature fit failed" in choice.reason
+
+
+def test_config_accepts_auto_and_names_it_among_the_choices():
+    """'auto' is a valid respiration_driver; a wrong value lists it."""
+    assert Config(respiration_driver="auto").respiration_driver == "auto"
+    with pytest.raises(ConfigError, match=r"respiration_driver = 'soil'.*'auto'"):
+        Config(respiration_driver="soil")
