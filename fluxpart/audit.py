@@ -60,8 +60,8 @@ def _codes(timeseries: pd.DataFrame, column: str, valid, labels) -> np.ndarray:
     return values.astype(np.int64)
 
 
-def audit_trail(timeseries: pd.DataFrame) -> pd.DataFrame:
-    """Count, per calendar year, the records at each stage of processing.
+def audit_trail(timeseries: pd.DataFrame, *, year_keys=None) -> pd.DataFrame:
+    """Count, per calendar or budget year, the records at each stage of processing.
 
     Parameters
     ----------
@@ -71,6 +71,9 @@ def audit_trail(timeseries: pd.DataFrame) -> pd.DataFrame:
         :data:`fluxpart.screening.REASON_CODES` or their names), ``nee_fill_quality``
         (0 measured, 1/2/3 filled A/B/C, -1 unfilled, or the labels ``"measured"``,
         ``"A"``, ``"B"``, ``"C"``, ``"unfilled"``) and ``nee_filled`` [µmol m-2 s-1].
+    year_keys : array_like of int, optional
+        Budget year of each record (``year`` of
+        :func:`fluxpart.timestamps.budget_years`); default the calendar year.
 
     Returns
     -------
@@ -115,7 +118,10 @@ def audit_trail(timeseries: pd.DataFrame) -> pd.DataFrame:
     nee = timeseries["nee_filled"].to_numpy(dtype=float, na_value=np.nan)
     carbon = np.where(np.isfinite(nee), np.abs(nee), 0.0) * seconds * GRAMS_CARBON_PER_UMOL
 
-    years = timeseries.index.year.to_numpy().astype(np.int64)
+    years = (timeseries.index.year.to_numpy() if year_keys is None
+             else np.asarray(year_keys)).astype(np.int64)
+    if years.size != len(timeseries):
+        raise FluxpartError(f"audit: {years.size} year keys for {len(timeseries)} records")
     columns = {"records_present": np.ones(len(years))}
     for code, name in REASON_CODES.items():
         columns[_reason_column(code, name)] = reason == code

@@ -27,6 +27,7 @@ from .errors import (
 )
 
 # The unit conversions live in fluxpart.units; re-exported here for existing callers.
+from .timestamps import budget_years
 from .units import GRAMS_CARBON_PER_UMOL, flux_to_carbon
 from .units import interval_seconds as _interval_seconds
 
@@ -72,7 +73,8 @@ class Budgets:
     monthly : pandas.DataFrame
         One row per calendar month (DatetimeIndex of month starts, named ``month``).
     annual : pandas.DataFrame
-        One row per calendar year (int index named ``year``).
+        One row per budget year (int index named ``year``: the calendar year in
+        which it starts; ``period_start`` and ``period_end`` columns).
     units : dict
         Unit of every column: ``"g C m-2"`` for the flux sums (per period), ``"1"``
         for counts, flags and shares.
@@ -115,7 +117,7 @@ def default_flux_names(columns) -> dict[str, str]:
 
 
 def aggregate(timeseries: pd.DataFrame, interval_minutes, *, fluxes=None,
-              quality_column="nee_fill_quality") -> Budgets:
+              quality_column="nee_fill_quality", year_start="01-01") -> Budgets:
     """Sum fluxes to daily, monthly and annual carbon budgets with coverage.
 
     Parameters
@@ -133,6 +135,9 @@ def aggregate(timeseries: pd.DataFrame, interval_minutes, *, fluxes=None,
         ``reco_*`` column present (:func:`default_flux_names`).
     quality_column : str, optional
         Name of the NEE fill-quality column; default ``"nee_fill_quality"``.
+    year_start : str, optional
+        First day of the budget year as ``"MM-DD"``; default ``"01-01"`` (calendar
+        years). See :func:`fluxpart.timestamps.budget_years`.
 
     Returns
     -------
@@ -153,8 +158,11 @@ def aggregate(timeseries: pd.DataFrame, interval_minutes, *, fluxes=None,
     Notes
     -----
     A day, month or year is the set of intervals that start in it (calendar
-    periods of local standard time). Every period between the first and the
-    last record appears, including periods without any row.
+    days and months of local standard time; budget years from `year_start`).
+    Every period between the first and the last record appears, including
+    periods without any row. The annual table is indexed by ``year``, the
+    calendar year in which the budget year starts, and gives its first day
+    ``period_start`` and the first day of the next, ``period_end``.
 
     - Flux sums [g C m-2]: ``Σ flux x interval seconds x 12.011e-6``. If any record
       of a flux is NaN in the period the sum is NaN; a missing value is never
@@ -162,7 +170,8 @@ def aggregate(timeseries: pd.DataFrame, interval_minutes, *, fluxes=None,
       incomplete. Partial periods are never scaled up.
     - ``records``: rows present; ``records_expected``: the full period at this
       interval by the calendar (a day at 30 min: 48; February 2024: 1392; a leap
-      year: 17,568); ``records_unfilled``: rows whose NEE is NaN or has quality -1.
+      year: 17,568; a budget year counts the days from its start to the next
+      start, 29 February included); ``records_unfilled``: rows whose NEE is NaN or has quality -1.
     - ``complete``: ``records == records_expected`` and ``records_unfilled == 0``.
     - ``share_*``: fractions of the rows present that are measured, filled A, B
       or C, or unfilled; they sum to 1 (NaN for a period without rows).
@@ -212,15 +221,19 @@ def aggregate(timeseries: pd.DataFrame, interval_minutes, *, fluxes=None,
                          * per_day, nee_out)
     monthly.index.name = "month"
 
-    year_keys = pd.Index(index.year.astype("int64"))
+    year_keys = pd.Index(budget_years(index, year_start)["year"].to_numpy())
     years = pd.Index(np.arange(year_keys.min(), year_keys.max() + 1, dtype="int64"))
+    bounds = _year_bounds(years, year_start)
     annual = _summarise(carbon, per_record, year_keys, years,
-                        lambda periods: np.where(_is_leap(periods.to_numpy()), 366, 365)
-                        * per_day, nee_out)
+                        lambda periods: (bounds["period_end"] - bounds["period_start"])
+                        .dt.days.to_numpy() * per_day, nee_out)
+    annual.insert(0, "period_end", bounds["period_end"].to_numpy())
+    annual.insert(0, "period_start", bounds["period_start"].to_numpy())
     annual.index.name = "year"
 
     units = {name: "g C m-2" for name in mapping.values()}
     units.update(COVERAGE_UNITS)
+    units.update(period_start="", period_end="")  # dates
     return Budgets(daily=daily, monthly=monthly, annual=annual, units=units)
 
 
@@ -327,6 +340,11 @@ def _summarise(carbon, per_record, keys, periods, expected_for, nee_column) -> p
     return frame
 
 
-def _is_leap(years: np.ndarray) -> np.ndarray:
-    """Gregorian leap years: divisible by 4, except centuries not divisible by 400."""
-    return (years % 4 == 0) & ((years % 100 != 0) | (years % 400 == 0))
+def _year_bounds(years: pd.Index, year_start: str) -> pd.DataFrame:
+    """First day of each budget year and of the next (``period_start``, ``period_end``)."""
+    month, day = (int(part) for part in year_start.split("-"))
+    return pd.DataFrame({
+        "period_start": pd.to_datetime({"year": years.to_numpy(), "month": month, "day": day}),
+        "period_end": pd.to_datetime({"year": years.to_numpy() + 1, "month": month,
+                                      "day": day})})
+

@@ -8,6 +8,7 @@ traceback is shown only for a fault of fluxpart itself.
 from __future__ import annotations
 
 import argparse
+import datetime
 import sys
 import warnings
 from pathlib import Path
@@ -25,6 +26,12 @@ def _format_annual(annual) -> str:
                            "reco_daytime", "share_measured", "complete") if c in annual.columns]
     lines = ["Annual budget [g C m-2; NEE < 0 is net uptake; share_measured of records]:",
              annual[columns].to_string(float_format=lambda v: f"{v:9.2f}")]
+    if "period_start" in annual.columns and any(
+            (start.month, start.day) != (1, 1) for start in annual["period_start"]):
+        spans = [f"{year} = {row['period_start']:%Y-%m-%d} to "
+                 f"{row['period_end'] - datetime.timedelta(days=1):%Y-%m-%d}"
+                 for year, row in annual.iterrows()]
+        lines.append(f"Budget years ([processing] year_start): {'; '.join(spans)}")
     rows = []
     nan = float("nan")
     for year, row in annual.iterrows():

@@ -202,6 +202,14 @@ class Config:
         the result's warnings; ``"off"`` skips the check. Default ``"refuse"``, our
         choice: a clock an hour off moves annual NEE by tens of g C m-2 without any
         other sign (issue 12).
+    year_start : str
+        First day of the budget year as ``"MM-DD"``; default ``"01-01"`` (calendar
+        years). ``"07-01"`` or ``"09-01"`` give budget years that keep a
+        southern-hemisphere summer or a growing season together (common practice).
+        The ``annual`` table keeps ``year`` (the calendar year in which the budget
+        year starts) and gives ``period_start`` / ``period_end``. 29 February is
+        refused (not in every year). u* thresholds and the annual E0 stay per
+        calendar year of data.
     """
 
     seed: int = 0
@@ -253,6 +261,7 @@ class Config:
     random_error_vpd_tolerance: float = 5.0
     agreement_margin: float = 0.15
     clock_check: str = "refuse"
+    year_start: str = "01-01"
 
     def __post_init__(self):
         _check(self)
@@ -340,6 +349,8 @@ def _is_number(value) -> bool:
 def _check(config: Config) -> None:
     if not isinstance(config.seed, int) or isinstance(config.seed, bool) or config.seed < 0:
         raise ConfigError(f"[processing] seed = {config.seed!r}: expected a non-negative integer")
+    from .timestamps import _month_day
+    _month_day(config.year_start)  # ConfigError naming [processing] year_start
     for name, choices in _CHOICES.items():
         value = getattr(config, name)
         if value not in choices:

@@ -40,6 +40,7 @@ from . import (
     schema,
     screening,
     solar,
+    timestamps,
     uncertainty,
     ustar,
 )
@@ -609,14 +610,19 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                       "reco_daytime": day.reco, "gpp_daytime": day.gpp}, index=frame.index),
     ], axis=1)
 
-    budgets = budget.aggregate(timeseries, interval, fluxes=_BUDGET_FLUXES)
+    budgets = budget.aggregate(timeseries, interval, fluxes=_BUDGET_FLUXES,
+                               year_start=config.year_start)
+    # budget year of each record ([processing] year_start); u* thresholds and the
+    # annual E0 stay per calendar year of data
+    year_keys = timestamps.budget_years(frame.index, config.year_start)["year"].to_numpy()
     daily = agreement.method_agreement(budgets.daily, config.agreement_margin)
     monthly = agreement.method_agreement(budgets.monthly, config.agreement_margin)
     annual = agreement.method_agreement(budgets.annual, config.agreement_margin)
     warnings.extend(agreement.disagreements(annual, config.agreement_margin))
     step("budgets")
-    annual = annual.assign(ustar_threshold=central.reindex(annual.index).to_numpy())
-    annual = _scenario_spread(annual, outcomes, frame.index, interval)
+    annual = annual.assign(ustar_threshold=timeseries["ustar_threshold"].groupby(year_keys)
+                           .max().reindex(annual.index).to_numpy())
+    annual = _scenario_spread(annual, outcomes, frame.index, interval, year_keys)
 
     parameters = {}
     try:
@@ -632,15 +638,18 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     timeseries = timeseries.assign(nee_random_error=sigma)
     daily, monthly, annual, gapfill_model = _uncertainty(
         daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night, night, day,
-        temperature, interval, config)
+        temperature, interval, config, year_keys)
     parameters["gapfill_error_model"] = gapfill_model
     annual = annual.join(uncertainty.carbon_accounting_units(annual))
-    audit_table = audit.audit_trail(timeseries)
+    audit_table = audit.audit_trail(timeseries, year_keys=year_keys)
     counts = screens.counts.copy()
     counts[screening.REASON_CODES[_REASON_LOW_USTAR]] = int((reason == _REASON_LOW_USTAR).sum())
     counts[screening.REASON_CODES[0]] = int((reason == 0).sum())
     for year, row in annual.iterrows():
         if not row["complete"]:
+            if config.year_start != "01-01":
+                last = row["period_end"] - pd.Timedelta(days=1)
+                year = f"budget year {year} ({row['period_start']:%Y-%m-%d} to {last:%Y-%m-%d})"
             warnings.append(f"{year} is a partial or not fully filled year "
                             f"({int(row['records'])} of {int(row['records_expected'])} records): "
                             "its sums are not annual totals and are not scaled up")
@@ -669,7 +678,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
 
 
 def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night,
-                 night, day, temperature, interval, config):
+                 night, day, temperature, interval, config, year_keys):
     """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals."""
     index = timeseries.index
     nee_measured = timeseries["nee_measured"].to_numpy(dtype=float)
@@ -715,16 +724,17 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                                                ustar_percentiles=percentiles)
         sigmas = [c for c in parts.columns if c.endswith("_sigma")]
         tables.append(table.join(parts[sigmas].reindex(table.index)))
-    parts = uncertainty.period_uncertainty(inputs, index.year.to_numpy(), interval,
+    parts = uncertainty.period_uncertainty(inputs, year_keys, interval,
                                            ustar_percentiles=percentiles)
     random = uncertainty.monte_carlo_sums(noise, index, interval,
-                                          draws=config.random_error_draws, seed=config.seed)
+                                          draws=config.random_error_draws, seed=config.seed,
+                                          year_keys=year_keys)
     annual = annual.join(uncertainty.uncertainty_budget(annual, random, parts))
     return tables[0], tables[1], annual, gapfill_model
 
 
-def _scenario_spread(annual, outcomes, index, interval) -> pd.DataFrame:
-    """Annual sums of each u* scenario and their spread (max - min) [g C m-2]."""
+def _scenario_spread(annual, outcomes, index, interval, year_keys) -> pd.DataFrame:
+    """Budget-year sums of each u* scenario and their spread (max - min) [g C m-2]."""
     if len(outcomes) == 1:
         return annual
     sums = {}
@@ -734,7 +744,7 @@ def _scenario_spread(annual, outcomes, index, interval) -> pd.DataFrame:
                                    "gpp_daytime": day.gpp, "reco_daytime": day.reco},
                                   index=index)
         carbon = per_record * float(budget.flux_to_carbon(1.0, interval))
-        sums[name] = carbon.groupby(index.year).sum(min_count=1)
+        sums[name] = carbon.groupby(year_keys).sum(min_count=1)
     out = annual.copy()
     for flux in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
         table = pd.DataFrame({name: s[flux] for name, s in sums.items()})

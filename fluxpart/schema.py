@@ -122,8 +122,10 @@ _BUDGET = {
     "date": ("", "calendar day (local standard time)"),
     "month": ("", "first day of the calendar month"),
     "year": ("", "calendar year of the interval starts (the year the budget year starts in)"),
-    "period_start": ("", "first day of the budget period (local standard time)"),
-    "period_end": ("", "last day of the budget period (local standard time)"),
+    "period_start": ("", "first day of the budget year, from [processing] year_start (local "
+                     "standard time)"),
+    "period_end": ("", "first day after the budget year (the next one's period_start; the "
+                   "period ends just before it)"),
     "nee": (CARBON, f"net ecosystem exchange summed over the period, {_CARBON_SUM}; < 0 is net "
             "uptake"),
     "records": ("1", "records present in the period"),

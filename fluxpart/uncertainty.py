@@ -653,7 +653,8 @@ def draw_random_errors(sigma, draws, rng) -> np.ndarray:
     return rng.laplace(0.0, 1.0, size=(int(draws), sigma.size)) * (sigma / np.sqrt(2.0))
 
 
-def monte_carlo_sums(sigma, index, interval_minutes, *, draws=_DRAWS, seed=0) -> pd.DataFrame:
+def monte_carlo_sums(sigma, index, interval_minutes, *, draws=_DRAWS, seed=0,
+                     year_keys=None) -> pd.DataFrame:
     """Random uncertainty of annual NEE sums by Monte Carlo with Laplace errors.
 
     Parameters
@@ -670,11 +671,15 @@ def monte_carlo_sums(sigma, index, interval_minutes, *, draws=_DRAWS, seed=0) ->
         known to about ±3 %, 1/√(2·draws)).
     seed : int, optional
         Seed of :func:`numpy.random.default_rng`; default 0.
+    year_keys : array_like of int, optional
+        Budget year of each record (:func:`fluxpart.timestamps.budget_years`),
+        non-decreasing in time; default the calendar year of `index`.
 
     Returns
     -------
     pandas.DataFrame
-        Indexed by calendar ``year``: ``random_sd`` (standard deviation of the
+        Indexed by ``year`` (calendar, or the keys of `year_keys`): ``random_sd``
+        (standard deviation of the
         annual sums of the drawn errors), ``random_percentile_2_5`` and
         ``random_percentile_97_5`` (their 2.5th and 97.5th percentiles),
         ``analytic_sd`` (√Σσ² converted, the same quantity without sampling)
@@ -706,7 +711,10 @@ def monte_carlo_sums(sigma, index, interval_minutes, *, draws=_DRAWS, seed=0) ->
     if isinstance(draws, bool) or not isinstance(draws, (int, np.integer)) or draws < 2:
         raise FluxpartError(f"monte_carlo_sums: draws = {draws!r}: expected a whole number >= 2")
     factor = _seconds_factor(interval_minutes)
-    years, codes = np.unique(index.year.to_numpy(), return_inverse=True)
+    keys = index.year.to_numpy() if year_keys is None else np.asarray(year_keys)
+    if keys.size != sigma.size:
+        raise FluxpartError(f"monte_carlo_sums: {keys.size} year keys for {sigma.size} records")
+    years, codes = np.unique(keys, return_inverse=True)
     rng = np.random.default_rng(seed)
     sums = np.zeros((int(draws), years.size))
     block = max(1, _BLOCK_ELEMENTS // int(draws))

@@ -1,0 +1,162 @@
+"""Budget years that start on a day other than 1 January ([processing] year_start).
+
+Outside values: the Gregorian calendar (a Sep–Aug year holding 29 February has
+366 days; reference/budget.toml) and the daily table itself, whose sums over each
+budget year are the reference for the annual sums (a sum over a period is the sum of
+its days' sums).
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+from conftest import load_reference
+
+from fluxpart import demo
+from fluxpart.audit import audit_trail
+from fluxpart.budget import aggregate
+from fluxpart.config import Config
+from fluxpart.errors import ConfigError
+from fluxpart.pipeline import process
+from fluxpart.uncertainty import monte_carlo_sums
+
+CALENDAR = load_reference("budget")["calendar"]
+RTOL = load_reference("budget")["conversion"]["relative_tolerance"]
+
+
+def _timeseries(start, end, rng):
+    """Half-hourly fluxes with varied values, so a misplaced record changes a sum."""
+    index = pd.date_range(start, end, freq="30min")
+    gpp = rng.uniform(0.0, 20.0, index.size)
+    reco = rng.uniform(1.0, 6.0, index.size)
+    return pd.DataFrame({"nee_filled": reco - gpp, "gpp_nighttime": gpp,
+                         "reco_nighttime": reco,
+                         "nee_fill_quality": rng.integers(0, 4, index.size).astype("int8")},
+                        index=index)
+
+
+@pytest.fixture(scope="module")
+def two_years():
+    """15 March 2019 to 20 October 2021: partial, leap, common and partial Sep–Aug years."""
+    frame = _timeseries("2019-03-15", "2021-10-20 23:30", np.random.default_rng(20261202))
+    return frame, aggregate(frame, 30, year_start="09-01")
+
+
+def test_annual_sums_equal_daily_sums_over_each_budget_year(two_years):
+    _, budgets = two_years
+    annual, daily = budgets.annual, budgets.daily
+    assert list(annual.index) == [2018, 2019, 2020, 2021]
+    for year, row in annual.iterrows():
+        days = daily.loc[f"{year}-09-01":f"{year + 1}-08-31"]
+        for flux in ("nee", "gpp_nighttime", "reco_nighttime"):
+            assert row[flux] == pytest.approx(days[flux].sum(), rel=RTOL), (year, flux)
+        assert row["records"] == days["records"].sum()
+        assert row["records_unfilled"] == days["records_unfilled"].sum()
+        measured = (days["share_measured"] * days["records"]).sum() / days["records"].sum()
+        assert row["share_measured"] == pytest.approx(measured, rel=1e-12)
+
+
+def test_budget_year_keys_and_dates(two_years):
+    annual = two_years[1].annual
+    assert annual.index.name == "year" and annual.index.dtype == "int64"
+    assert list(annual["period_start"]) == [pd.Timestamp(f"{y}-09-01") for y in annual.index]
+    assert list(annual["period_end"]) == [pd.Timestamp(f"{y + 1}-09-01")
+                                          for y in annual.index]
+    assert budgets_units_ok(two_years[1].units)
+
+
+def budgets_units_ok(units) -> bool:
+    return units["period_start"] == "" and units["period_end"] == "" and units["nee"] == "g C m-2"
+
+
+def test_leap_budget_year_counts_366_days(two_years):
+    """Sep 2019 – Aug 2020 holds 29 February 2020: 366 × 48 records; Sep 2020 – Aug 2021 365."""
+    annual = two_years[1].annual
+    assert annual.loc[2019, "records_expected"] == CALENDAR["records_leap_year_30min"]
+    assert annual.loc[2019, "records"] == CALENDAR["records_leap_year_30min"]
+    assert annual.loc[2020, "records_expected"] == CALENDAR["records_common_year_30min"]
+    # Sep 2018 – Aug 2019 has no 29 February although the run holds 2020's
+    assert annual.loc[2018, "records_expected"] == CALENDAR["records_common_year_30min"]
+    assert bool(annual.loc[2019, "complete"]) and bool(annual.loc[2020, "complete"])
+
+
+def test_partial_first_and_last_budget_years_flagged(two_years):
+    annual = two_years[1].annual
+    first_days = (pd.Timestamp("2019-09-01") - pd.Timestamp("2019-03-15")).days
+    last_days = (pd.Timestamp("2021-10-21") - pd.Timestamp("2021-09-01")).days
+    assert annual.loc[2018, "records"] == first_days * 48
+    assert annual.loc[2021, "records"] == last_days * 48
+    assert not annual.loc[2018, "complete"] and not annual.loc[2021, "complete"]
+
+
+def test_default_is_the_calendar_year(two_years):
+    """year_start "01-01" groups by calendar year exactly as before, with Jan–Jan dates."""
+    frame, _ = two_years
+    budgets = aggregate(frame, 30)
+    annual, daily = budgets.annual, budgets.daily
+    assert list(annual.index) == [2019, 2020, 2021]
+    for year, row in annual.iterrows():
+        days = daily.loc[str(year)]
+        assert row["nee"] == pytest.approx(days["nee"].sum(), rel=RTOL)
+        assert row["period_start"] == pd.Timestamp(f"{year}-01-01")
+        assert row["period_end"] == pd.Timestamp(f"{year + 1}-01-01")
+    assert annual.loc[2020, "records_expected"] == CALENDAR["records_leap_year_30min"]
+    explicit = aggregate(frame, 30, year_start="01-01")
+    pd.testing.assert_frame_equal(explicit.annual, annual)
+    # daily and monthly tables do not depend on the budget year
+    shifted = aggregate(frame, 30, year_start="09-01")
+    pd.testing.assert_frame_equal(shifted.daily, daily)
+    pd.testing.assert_frame_equal(shifted.monthly, budgets.monthly)
+
+
+@pytest.mark.parametrize("bad", ["02-30", "13-01", "00-10", "02-29", "9-01", "0901", 901])
+def test_bad_year_start_names_the_setting(bad):
+    with pytest.raises(ConfigError, match=r"\[processing\] year_start"):
+        Config(year_start=bad)
+    with pytest.raises(ConfigError, match=r"\[processing\] year_start"):
+        Config.from_mapping({"year_start": bad})
+
+
+def test_audit_and_random_error_follow_the_keys(two_years):
+    """Per-year counts and Monte Carlo sums group by the budget-year keys given."""
+    frame, budgets = two_years
+    keys = np.asarray(budgets.annual.index.repeat(budgets.annual["records"].to_numpy()))
+    trail = audit_trail(frame.assign(rejection_reason=0), year_keys=keys)
+    assert list(trail.index) == [2018, 2019, 2020, 2021]
+    assert trail["records_present"].tolist() == budgets.annual["records"].tolist()
+    sigma = np.full(len(frame), 1.0)
+    sums = monte_carlo_sums(sigma, frame.index, 30, draws=20, seed=0, year_keys=keys)
+    assert sums["records"].tolist() == budgets.annual["records"].tolist()
+    calendar = monte_carlo_sums(sigma, frame.index, 30, draws=20, seed=0)
+    assert list(calendar.index) == [2019, 2020, 2021]
+
+
+def test_pipeline_budget_year_from_july():
+    """A demo calendar year with year_start "07-01": two partial budget years whose sums,
+    uncertainty and audit rows follow the July–June split."""
+    frame, _ = demo.site_year(seed=0)
+    with pytest.warns(Warning):
+        result = process(frame, demo.site(), Config(year_start="07-01", random_error_draws=50))
+    annual, daily = result.annual, result.daily
+    first = int(frame.index[0].year)
+    assert list(annual.index) == [first - 1, first]
+    assert list(annual["period_start"]) == [pd.Timestamp(f"{first - 1}-07-01"),
+                                            pd.Timestamp(f"{first}-07-01")]
+    for year, row in annual.iterrows():
+        days = daily.loc[f"{year}-07-01":f"{year + 1}-06-30"]
+        assert row["nee"] == pytest.approx(days["nee"].sum(), rel=1e-9)
+        assert row["gpp_daytime"] == pytest.approx(days["gpp_daytime"].sum(), rel=1e-9)
+        assert not row["complete"]
+    assert np.isfinite(annual["nee_ci95_low"]).all()
+    assert list(result.audit.index) == list(annual.index)
+    assert result.audit["records_present"].tolist() == annual["records"].tolist()
+    assert any("budget year" in text and "partial" in text for text in result.warnings)
+
+
+def test_cli_names_the_budget_year_periods(two_years):
+    """The printed annual table says which days each budget year covers (not for 01-01)."""
+    from fluxpart.cli import _format_annual
+
+    frame, budgets = two_years
+    text = _format_annual(budgets.annual)
+    assert "2019 = 2019-09-01 to 2020-08-31" in text
+    assert "Budget years" not in _format_annual(aggregate(frame, 30).annual)
