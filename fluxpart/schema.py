@@ -138,7 +138,8 @@ _BUDGET = {
     "share_filled_c": ("1", "share of records filled with quality C"),
     "share_unfilled": ("1", "share of records left unfilled"),
     "nee_share_from_filled": ("1", "share of the sum of |NEE| that came from filled records"),
-    "ustar_threshold": ("m s-1", "u* threshold applied in the year"),
+    "ustar_threshold": ("m s-1", "u* threshold applied in the year (the largest where a budget "
+                        "year spans two calendar years' thresholds)"),
 }
 
 #: What the stated intervals do not contain (named in the column descriptions); the
@@ -268,7 +269,8 @@ _CARBON_ABS = f"{_CARBON_SUM} (CO2 flux converted to carbon)"
 
 #: Unit and description of every column of the audit table (:mod:`fluxpart.audit`).
 AUDIT_COLUMNS: dict[str, tuple[str, str]] = {
-    "year": ("", "calendar year of the interval starts"),
+    "year": ("", "budget year of the interval starts: the calendar year in which it starts "
+             "([processing] year_start)"),
     "records_present": ("1", "records (rows) of the year in the timeseries"),
     **{_reason_column(code, name): ("1", "records whose NEE passed screening and the u* filter"
                                     if code == 0 else
