@@ -112,3 +112,20 @@ def test_config_accepts_auto_and_names_it_among_the_choices():
     assert Config(respiration_driver="auto").respiration_driver == "auto"
     with pytest.raises(ConfigError, match=r"respiration_driver = 'soil'.*'auto'"):
         Config(respiration_driver="soil")
+
+
+def test_the_run_records_the_choice_and_both_criterion_values():
+    """process() with the default 'auto' records the chosen temperature, both sums of
+    squares and ΔBIC = n ln(SSR_tsoil / SSR_tair) (Schwarz 1978) in the provenance."""
+    from fluxpart import demo
+    from fluxpart.pipeline import process
+
+    frame, _ = demo.site_year(seed=4)
+    result = process(frame, demo.site(), Config(ustar_bootstrap_draws=0))
+    record = result.provenance["respiration_driver"]
+    assert record["setting"] == "auto" and record["chosen"] in ("tair", "tsoil")
+    ssr = record["ssr"]
+    assert record["delta_bic_tsoil_minus_tair"] == pytest.approx(
+        record["records"] * math.log(ssr["tsoil"] / ssr["tair"]), rel=1e-9)
+    assert record["chosen"] == ("tsoil" if ssr["tsoil"] < ssr["tair"] else "tair")
+    assert not any("respiration" in text for text in result.warnings)
