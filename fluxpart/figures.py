@@ -359,6 +359,15 @@ def _sigma_column(frame: pd.DataFrame, flux: str):
     return None
 
 
+def _respiration_driver(written) -> str:
+    """The temperature the run used: the setting, or the choice recorded for ``"auto"``."""
+    driver = written.setting("respiration_driver", "tair")
+    if driver == "auto":
+        record = written.manifest.get("provenance", {}).get("respiration_driver") or {}
+        driver = record.get("chosen", "tair")
+    return driver
+
+
 def _temperature_column(series: pd.DataFrame, driver: str) -> str:
     for name in (f"{driver}_filled", driver):
         if name in series.columns:
@@ -844,7 +853,7 @@ def _evenly_spaced(count, wanted):
 
 def figure_night_respiration(drawing, written, interval) -> Figure:
     series = written.timeseries
-    driver = written.setting("respiration_driver", "tair")
+    driver = _respiration_driver(written)
     temperature_column = _temperature_column(series, driver)
     periods = period_masks(written)
     night = (series["is_night"].to_numpy(dtype=bool)
@@ -1069,7 +1078,7 @@ def figure_light_response(drawing, written) -> Figure:
     parameters = written.table("parameters_daytime")
     states = window_status(parameters)
     windows = _light_windows(parameters, states)
-    driver = written.setting("respiration_driver", "tair")
+    driver = _respiration_driver(written)
     temperature_column = _temperature_column(series, driver)
     rg_column = "rg_filled" if "rg_filled" in series.columns else "rg"
     vpd_column = "vpd_filled" if "vpd_filled" in series.columns else "vpd"

@@ -53,7 +53,7 @@ from .errors import (
     MissingColumnError,
     SpacingError,
 )
-from .partition import daytime, nighttime
+from .partition import daytime, nighttime, temperature_choice
 from .site import Site
 from .variables import REQUIRED, VARIABLES
 
@@ -292,10 +292,28 @@ def _labelled(timeseries: pd.DataFrame) -> pd.DataFrame:
 
 def _temperature(config: Config, frame: pd.DataFrame) -> str:
     driver = config.respiration_driver
-    if driver not in frame.columns:
+    if driver != "auto" and driver not in frame.columns:
         raise ConfigError(f"[processing] respiration_driver = {driver!r}, but the input has no "
                           f"column {driver!r}; map it in [input.columns] or use 'tair'")
     return driver
+
+
+def _chosen_temperature(driver, index, screened, is_night, threshold, config):
+    """Resolve ``respiration_driver = "auto"`` on the u*-filtered night NEE (else as set)."""
+    if driver != "auto":
+        return driver, None
+    too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
+    choice = temperature_choice.choose_respiration_temperature(
+        index, np.where(too_calm, np.nan, screened["nee"].to_numpy()),
+        screened["tair"].to_numpy(),
+        screened["tsoil"].to_numpy() if "tsoil" in screened.columns else None, is_night,
+        e0_window_days=config.e0_window_days, e0_window_step_days=config.e0_window_step_days,
+        e0_min_points=config.e0_min_points,
+        e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
+        e0_max_relative_error=config.e0_max_relative_error,
+        e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
+        rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points)
+    return choice.driver, choice
 
 
 def _ustar_thresholds(frame, screened, is_night, site, config):
@@ -581,6 +599,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     conditions = gapfill.driver_conditions(filled_drivers)
 
     runs = {"central": _per_record(frame.index, central)}
+    temperature, choice = _chosen_temperature(temperature, frame.index, screened, is_night,
+                                              runs["central"], config)
     runs.update({name: _per_record(frame.index, values)
                  for name, values in scenario_thresholds.items()})
     arguments = (frame, screened, filled_drivers, conditions, is_night)
@@ -673,6 +693,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         warnings=tuple(warnings),
         provenance={**(provenance or {}), "screening": screens.thresholds, "clock": clock_record,
                     "preflight": [str(f) for f in findings],
+                    "respiration_driver": ({"setting": temperature} if choice is None
+                                           else choice.to_dict()),
                     "uncertainty": {"confidence": uncertainty.CONFIDENCE,
                                     "not_quantified": list(uncertainty.NOT_QUANTIFIED)}})
 

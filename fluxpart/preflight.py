@@ -233,7 +233,9 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     """
     index = pd.DatetimeIndex(frame.index)
     is_night = np.asarray(is_night, dtype=bool)
-    temperature_name = config.respiration_driver
+    # "auto" falls back to air temperature, the driver every record has
+    temperature_name = ("tair" if config.respiration_driver == "auto"
+                        else config.respiration_driver)
     findings = _constant(frame, temperature_name)
     if len(index) == 0:
         return [Finding("whole record", "no records", True)]

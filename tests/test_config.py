@@ -20,7 +20,7 @@ def test_defaults_are_the_published_settings():
     assert config.e0_min_temperature_range == 5.0
     assert config.e0_bounds == (30.0, 450.0)
     assert config.seed == 0
-    assert config.respiration_driver == "tair"
+    assert config.respiration_driver == "auto"
     assert config.e0_fallback is None
 
 

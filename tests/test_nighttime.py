@@ -74,7 +74,11 @@ def _config_settings():
     config = Config()
     names = [f.name for f in dataclasses.fields(Config)
              if f.name.startswith(("e0_", "rref_")) or f.name == "respiration_driver"]
-    return {name: getattr(config, name) for name in names}
+    settings = {name: getattr(config, name) for name in names}
+    # the pipeline resolves "auto" to the temperature the night data favour
+    if settings["respiration_driver"] == "auto":
+        settings["respiration_driver"] = "tair"
+    return settings
 
 
 # --------------------------------------------------------------------------- #
