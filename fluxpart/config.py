@@ -9,6 +9,7 @@ nearest valid one.
 from __future__ import annotations
 
 import difflib
+import math
 from dataclasses import asdict, dataclass, fields
 
 from ._validate import read_toml
@@ -351,7 +352,9 @@ _PERCENTILES = (5, 16, 50, 84, 95)
 
 
 def _is_number(value) -> bool:
-    return isinstance(value, (int, float)) and not isinstance(value, bool)
+    """A finite int or float (TOML's nan and inf are never a valid setting)."""
+    return (isinstance(value, (int, float)) and not isinstance(value, bool)
+            and math.isfinite(value))
 
 
 def _check(config: Config) -> None:

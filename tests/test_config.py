@@ -108,6 +108,11 @@ def test_from_toml_missing_and_invalid(tmp_path):
     ({"gapfill_interpolation_hours": -1.0}, r"gapfill_interpolation_hours = -1.0"),
     ({"gapfill_min_donors": 0}, r"gapfill_min_donors = 0.*whole number"),
     ({"daytime_min_points": 0}, r"daytime_min_points = 0"),
+    # TOML reads nan and inf as floats; no setting is meaningful at either (review finding)
+    ({"tair_tolerance": float("nan")}, r"tair_tolerance = nan.*positive"),
+    ({"night_rg_threshold": float("nan")}, r"night_rg_threshold = nan"),
+    ({"despike_z": float("inf")}, r"despike_z = inf.*positive"),
+    ({"e0_bounds": (30.0, float("inf"))}, r"e0_bounds"),
 ])
 def test_bad_values_name_the_setting(overrides, pattern):
     """Each bad value raises ConfigError naming the [processing] setting."""
