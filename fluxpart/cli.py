@@ -97,7 +97,7 @@ def _command_demo(args) -> int:
                          progress=advance)
     out = Path(args.out)
     result.write(out)
-    print(f"fluxpart demo: {site.name} (a fictional site), {frame.index[0]:%Y-%m-%d} to "
+    print(f"fluxpart demo: {site.name}, {frame.index[0]:%Y-%m-%d} to "
           f"{frame.index[-1]:%Y-%m-%d}, {len(frame)} records")
     print()
     print(_format_annual(result.annual))

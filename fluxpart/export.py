@@ -47,7 +47,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from .errors import FluxpartError, InputFileError
+from .errors import FluxpartError, InputFileError, OutputError
 from .units import KG_CARBON_PER_UMOL
 
 __all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf"]
@@ -315,9 +315,12 @@ def write_netcdf(result, path) -> Path:
     pathlib.Path
         The file written.
     """
+    path = Path(path)
+    if path.is_dir():
+        raise OutputError(f"--netcdf {str(path)!r} is a folder: give the path of the NetCDF "
+                          "file to write, e.g. result.nc")
     dataset = to_xarray(result)
     engine = _engine()
-    path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
     handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
     os.close(handle)

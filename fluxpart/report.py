@@ -40,7 +40,7 @@ import pandas as pd
 
 from .config import Config
 from .constants import CARBON_MOLAR_MASS, CO2_MOLAR_MASS, SOLAR_CONSTANT
-from .errors import InputFileError
+from .errors import InputFileError, OutputError
 from .figures import (
     FIGURES,
     Written,
@@ -307,9 +307,12 @@ def _reading_notes(combined_used: bool) -> str:
         "NEE &lt; 0 is net uptake by the ecosystem; GPP and Reco are positive. Budgets are in "
         "grams of carbon per square metre (g C m-2); t CO2 ha-1 = g C m-2 × "
         f"{CO2_MOLAR_MASS}/{CARBON_MOLAR_MASS} × 0.01.",
-        "The uncertainty covers the parts the run computed (random error, u* threshold, "
-        "partitioning method); systematic errors of the measurement itself (energy-balance "
-        "closure, advection, storage, footprint) are not included.",
+        "The uncertainty covers the parts the run computed and wrote beside each total (the "
+        "random error, gap filling with its bias on artificial gaps, the u* threshold, fitted "
+        "parameters and the choice of partitioning method, as far as each applies to the "
+        "flux); systematic errors of the measurement itself (energy-balance closure, "
+        "advection, storage, footprint) are not included (the manifest lists every part "
+        "left out).",
     ]
     if combined_used:
         notes.append('<span id="note-combined">* Combined uncertainty: the root sum of squares '
@@ -829,6 +832,9 @@ def build_report(directory, out=None, *, progress=None) -> Path:
     directory = Path(directory)
     written = read_written(directory)
     out = directory / "report" if out is None else Path(out)
+    if out.exists() and not out.is_dir():
+        raise OutputError(f"--out {str(out)!r} is an existing file, not a folder: give a folder "
+                          "for the report page and its figures")
     interval = interval_minutes(written.timeseries.index)
     tick = progress if progress is not None else (lambda: None)
     figures = draw_figures(written, tick)

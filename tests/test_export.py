@@ -120,3 +120,22 @@ def test_version_flag_prints_the_package_version(capsys):
         main(["--version"])
     assert stop.value.code == 0
     assert capsys.readouterr().out.strip() == f"fluxpart {fluxpart.__version__}"
+
+
+def test_export_onto_a_folder_is_one_error_line(written_demo, tmp_path, capsys):
+    """--netcdf naming an existing folder: one error line and exit 2, no traceback (review)."""
+    _, folder = written_demo
+    assert main(["export", str(folder), "--netcdf", str(tmp_path)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error:") and "is a folder" in err[0]
+
+
+def test_report_out_naming_a_file_is_one_error_line(written_demo, tmp_path, capsys):
+    """report --out naming an existing file: one error line and exit 2 before any figure."""
+    _, folder = written_demo
+    target = tmp_path / "a-file"
+    target.write_text("keep me")
+    assert main(["report", str(folder), "--out", str(target), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error:") and "existing file" in err[0]
+    assert target.read_text() == "keep me"
