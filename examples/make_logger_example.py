@@ -100,6 +100,7 @@ name = "Quillmoor maize field, logger export (fictional)"
 latitude = {the_site.latitude}
 longitude = {the_site.longitude}
 utc_offset = {the_site.utc_offset}          # standard time (CET); the logger keeps civil time
+canopy = "{the_site.canopy}"          # maize: the short-canopy u* floor
 
 [input]
 path = "{SUBFOLDER}/maize_*.dat"   # one file per half-year, read as one record

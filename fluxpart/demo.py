@@ -31,10 +31,10 @@ __all__ = ["SITE", "compare_with_truth", "site", "site_year", "write_example"]
 
 #: The fictional Quillmoor grassland (C3); see the module docstring.
 SITE = Site(name="Quillmoor grassland (fictional)", latitude=49.3, longitude=10.2,
-            utc_offset=1.0)
+            utc_offset=1.0, canopy="short")
 
 _MAIZE_SITE = Site(name="Quillmoor maize field (fictional)", latitude=49.3, longitude=10.2,
-                   utc_offset=1.0)
+                   utc_offset=1.0, canopy="short")
 
 # Ecophysiology of the two variants: our own choices, set to give annual sums of
 # the magnitude reported for temperate grasslands and maize (common practice).
@@ -493,6 +493,7 @@ name = "{the_site.name}"
 latitude = {the_site.latitude}
 longitude = {the_site.longitude}
 utc_offset = {the_site.utc_offset}
+canopy = "{the_site.canopy}"          # grass and maize: the short-canopy u* floor
 
 [input]
 path = "{csv_path.name}"

@@ -173,8 +173,9 @@ def test_site_config_reads_the_canopy(tmp_path):
     from fluxpart import demo
     from fluxpart.io import read_site_config
 
-    path = demo.write_example(tmp_path)
-    assert read_site_config(path).site.canopy == "tall"
-    text = path.read_text(encoding="utf-8").replace("[site]\n", '[site]\ncanopy = "short"\n', 1)
-    path.write_text(text, encoding="utf-8")
+    path = demo.write_example(tmp_path)      # the demo's grassland: a short canopy
     assert read_site_config(path).site.canopy == "short"
+    text = "".join(line for line in path.read_text(encoding="utf-8").splitlines(keepends=True)
+                   if not line.startswith("canopy"))
+    path.write_text(text, encoding="utf-8")
+    assert read_site_config(path).site.canopy == "tall"
