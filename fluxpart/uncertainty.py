@@ -67,7 +67,7 @@ from .errors import (
     MissingColumnError,
     SpacingError,
 )
-from .schema import NOT_QUANTIFIED
+from .schema import NOT_QUANTIFIED, RANDOM_ERROR_MODEL_COLUMNS, UNCERTAINTY_COLUMNS
 
 __all__ = [
     "ANNUAL_COLUMNS",
@@ -132,111 +132,12 @@ CONFIDENCE = 0.95
 #: What the stated intervals do not contain (column descriptions, manifest, README).
 _FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
 
-_CARBON = "g C m-2"
-_FLUX = "µmol m-2 s-1"
-
 #: Unit and description of every column :func:`uncertainty_budget`,
 #: :func:`period_uncertainty` and :func:`carbon_accounting_units` add to the budget
-#: tables. Every ``_uncertainty_`` and ``_sigma`` column is one standard deviation.
-_NOT_COVERED = "not included: " + "; ".join(NOT_QUANTIFIED)
-ANNUAL_COLUMNS: dict[str, tuple[str, str]] = {
-    "nee_uncertainty_random": (_CARBON, "1 sigma: random error of the NEE sum over the measured "
-                               "records (Laplace record errors, Monte Carlo per year, analytic "
-                               "per day and month); filled records are in the gap-filling part"),
-    "nee_uncertainty_random_percentile_2_5": (_CARBON, "2.5th percentile of the Monte Carlo "
-                                              "random error of the annual NEE sum (measured "
-                                              "records)"),
-    "nee_uncertainty_random_percentile_97_5": (_CARBON, "97.5th percentile of the Monte Carlo "
-                                               "random error of the annual NEE sum (measured "
-                                               "records)"),
-    "nee_uncertainty_random_analytic": (_CARBON, "random error of the annual NEE sum over the "
-                                        "measured records from their variances (independent "
-                                        "errors)"),
-    "nee_uncertainty_gapfill": (_CARBON, "1 sigma: gap-filling error of the NEE sum, from "
-                                "artificial gaps of the site's own gap lengths scored on its "
-                                "measured records: independent and within-gap correlated parts "
-                                "plus the systematic fill bias (Richardson & Hollinger 2007)"),
-    "nee_uncertainty_gapfill_bias": (_CARBON, "systematic gap-filling bias of the NEE sum estimated on "
-                         "artificial gaps (fill minus measured; not subtracted from nee, "
-                         "counted in nee_uncertainty_gapfill)"),
-    "gpp_nighttime_uncertainty_random": (_CARBON, "1 sigma: random error of nighttime GPP = "
-                                         "random error of NEE (GPP = Reco - NEE)"),
-    "gpp_uncertainty_partitioning": (_CARBON, "1 sigma: structural error of GPP estimated as "
-                                     "|daytime - nighttime| / sqrt(2); in the totals of both "
-                                     "methods"),
-    "reco_uncertainty_temperature_driver": (_CARBON, "1 sigma: structural error of Reco and GPP "
-                                            "from the choice of respiration temperature: "
-                                            "|nighttime Reco with the other temperature - "
-                                            "nighttime Reco| x sqrt(w), w the weight the night "
-                                            "data give the other temperature (BIC); in the "
-                                            "totals of all partitioned fluxes (NaN without "
-                                            "soil temperature)"),
-    "reco_uncertainty_partitioning": (_CARBON, "1 sigma: structural error of Reco estimated as "
-                                      "|daytime - nighttime| / sqrt(2); in the totals of both "
-                                      "methods"),
-    "uncertainty_parts_missing": ("", "parts of the budget that could not be estimated this "
-                                  "year (left out of the totals and intervals)"),
-    "net_uptake_t_co2_per_ha": ("t CO2 ha-1", "net CO2 uptake in the year, positive = uptake "
-                                "(= -NEE x 44.009/12.011 x 0.01)"),
-    "net_uptake_t_co2_per_ha_uncertainty": ("t CO2 ha-1", "1 sigma: total uncertainty of the "
-                                            "net uptake (nee_uncertainty_total converted)"),
-    "net_uptake_t_co2_per_ha_uncertainty_random": ("t CO2 ha-1", "1 sigma: random part of the "
-                                                   "uncertainty of the net uptake"),
-}
-_TOTAL_PARTS = {
-    "nee": "random, gap filling and u* threshold",
-    "gpp_nighttime": "random, gap filling, u* threshold, fitted parameters and partitioning",
-    "reco_nighttime": "u* threshold, fitted parameters (E0, Rref) and partitioning",
-    "gpp_daytime": "u* threshold, fitted parameters (Rref of the windows) and partitioning",
-    "reco_daytime": "u* threshold, fitted parameters (Rref of the windows) and partitioning",
-}
-for _flux in _FLUXES:
-    ANNUAL_COLUMNS[f"{_flux}_uncertainty_ustar"] = (
-        _CARBON, f"1 sigma: u* threshold part of {_flux}: range over the u* scenario runs / "
-        "span of their standard-normal quantiles")
-    ANNUAL_COLUMNS[f"{_flux}_uncertainty_total"] = (
-        _CARBON, f"1 sigma: root sum of squares of the parts of {_flux} ({_TOTAL_PARTS[_flux]})"
-        f"; {_NOT_COVERED}")
-    ANNUAL_COLUMNS[f"{_flux}_sigma"] = (
-        _CARBON, f"1 sigma: total uncertainty of the {_flux} sum of the period "
-        f"({_TOTAL_PARTS[_flux]}); {_NOT_COVERED}")
-    ANNUAL_COLUMNS[f"{_flux}_ci95_low"] = (
-        _CARBON, f"lower end of the stated 95 % interval of the annual {_flux} sum "
-        f"(sum - 1.96 x {_flux}_uncertainty_total); {_NOT_COVERED}")
-    ANNUAL_COLUMNS[f"{_flux}_ci95_high"] = (
-        _CARBON, f"upper end of the stated 95 % interval of the annual {_flux} sum "
-        f"(sum + 1.96 x {_flux}_uncertainty_total); {_NOT_COVERED}")
-for _flux in _FLUXES[1:]:
-    ANNUAL_COLUMNS[f"{_flux}_uncertainty_parameters"] = (
-        _CARBON, f"1 sigma: fitted-parameter part of {_flux}")
-del _flux
-
-#: Unit and description of the columns of :meth:`RandomErrorModel.table` and
-#: :attr:`RandomErrorModel.bins` (parameter tables).
-MODEL_COLUMNS: dict[str, tuple[str, str]] = {
-    "flux_class": ("", "uptake (NEE < 0) or release (NEE >= 0)"),
-    "intercept": (_FLUX, "random error model: standard deviation at |NEE| = 0"),
-    "slope": ("1", "random error model: increase of the standard deviation per unit |NEE|"),
-    "lowest_abs_nee": (_FLUX, "smallest binned mean |NEE|; the model is not extrapolated below"),
-    "floor": (_FLUX, "smallest standard deviation the model returns (smallest binned value)"),
-    "pairs": ("1", "record pairs 24 h apart under similar conditions"),
-    "bins": ("1", "flux bins the line was fitted to"),
-    "source": ("", "fitted, constant (one bin), or borrowed from the other flux class"),
-    "bin": ("1", "flux bin number within its class, by increasing |NEE|"),
-    "mean_abs_nee": (_FLUX, "mean |NEE| of the pairs in the bin (pair means)"),
-    "sigma": (_FLUX, "standard deviation of the pair differences / sqrt(2)"),
-    "laplace_scale": (_FLUX, "Laplace scale: mean |pair difference| / sqrt(2)"),
-    "record_class": ("", "night or day records (gap-filling error model)"),
-    "bias": (_FLUX, "gap filling: mean error per filled record on artificial gaps (fill minus "
-             "measured)"),
-    "bias_se": (_FLUX, "standard error of the gap-filling bias"),
-    "independent_variance": ("umol2 m-4 s-2", "gap filling: error variance per record "
-                             "independent of its neighbours (a in a n + b n^2)"),
-    "correlated_variance": ("umol2 m-4 s-2", "gap filling: error variance shared by every "
-                            "record of a gap (b in a n + b n^2)"),
-    "gaps": ("1", "artificial gaps scored"),
-    "records": ("1", "held-out measured records scored"),
-}
+#: tables, and of the error-model tables: kept in the column catalogue
+#: (:mod:`fluxpart.schema`), named here for the stage's own use.
+ANNUAL_COLUMNS = UNCERTAINTY_COLUMNS
+MODEL_COLUMNS = RANDOM_ERROR_MODEL_COLUMNS
 
 
 @dataclass(frozen=True)
