@@ -11,7 +11,12 @@ that needs it is touched, and the demo, report and batch paths only when used.
 
 from __future__ import annotations
 
+import logging
 from importlib import import_module
+
+# A library logs, the application decides where to (Python logging HOWTO, "Configuring
+# Logging for a Library"): progress of process() goes to the 'fluxpart' logger at INFO.
+logging.getLogger("fluxpart").addHandler(logging.NullHandler())
 
 # The one place the version is written; pyproject.toml reads it from here.
 __version__ = "0.1.0"

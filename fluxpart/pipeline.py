@@ -23,6 +23,7 @@ settings to the stage functions and assembles their outputs.
 from __future__ import annotations
 
 import datetime
+import logging
 import warnings as _warnings
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -59,6 +60,9 @@ from .variables import REQUIRED, VARIABLES
 
 __all__ = ["Result", "check_record", "load", "process", "process_site_config",
            "screening_summary", "stage_count"]
+
+#: Progress of :func:`process` at INFO level (``logging.getLogger("fluxpart")``).
+_LOG = logging.getLogger("fluxpart.pipeline")
 
 _BUDGET_FLUXES = {"nee_filled": "nee", "gpp_nighttime": "gpp_nighttime",
                   "reco_nighttime": "reco_nighttime", "gpp_daytime": "gpp_daytime",
@@ -571,7 +575,11 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     temperature = _temperature(config, frame)
     warnings = [f"input: {text}" for text in [*(provenance or {}).get("reader", {}).get(
         "warnings", []), *notes]]
-    step = progress if progress is not None else (lambda label: None)
+
+    def step(label: str) -> None:
+        _LOG.info("%s: %s", site.name, label)     # the standard logging route (silent by default)
+        if progress is not None:
+            progress(label)
 
     geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     screened = screens.screened

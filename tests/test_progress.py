@@ -103,3 +103,21 @@ def test_bad_total_is_a_clear_error(total):
     """A negative or non-integer total is rejected, naming the value."""
     with pytest.raises(ValueError, match="Progress total"):
         Progress(total, "x")
+
+
+def test_process_reports_its_steps_through_logging(caplog):
+    """process() logs each progress step at INFO on the 'fluxpart' logger (issue 15), the
+    route a notebook or a service reads with the standard logging module."""
+    import logging
+
+    import fluxpart
+
+    frame, _ = fluxpart.demo.site_year(seed=0)
+    frame = frame.loc["2021-05-01":"2021-06-29"]
+    config = fluxpart.Config(ustar_method="fixed", clock_check="off")
+    labels = []
+    with caplog.at_level(logging.INFO, logger="fluxpart"):
+        fluxpart.process(frame, fluxpart.demo.SITE, config, progress=labels.append)
+    logged = [r.getMessage() for r in caplog.records if r.name.startswith("fluxpart")]
+    assert labels and len(logged) >= len(labels)
+    assert all(any(label in message for message in logged) for label in labels)
