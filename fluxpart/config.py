@@ -109,8 +109,10 @@ class Config:
     respiration_driver : str
         Temperature that drives Lloyd–Taylor respiration: ``"tair"``, ``"tsoil"``
         or ``"auto"`` (the one whose nighttime Lloyd–Taylor fit explains the
-        measured, u*-filtered night NEE better, by BIC; ``"tair"`` without a
-        ``tsoil`` column; see :mod:`fluxpart.partition.temperature_choice`). The
+        measured, u*-filtered night NEE better: soil temperature where its BIC is
+        lower by more than 2, "positive evidence" after Kass & Raftery 1995, air
+        temperature otherwise and where there is no ``tsoil`` column; see
+        :mod:`fluxpart.partition.temperature_choice`). The
         choice and both criterion values are in ``provenance["respiration_driver"]``.
         Default ``"auto"``: Lloyd & Taylor (1994) fitted soil respiration to soil
         temperature, while some ecosystems' respiration follows air temperature,

@@ -616,7 +616,15 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     # memory for no gain in wall time (GIL-bound); sites run in parallel in `batch`
     outcomes = {}
     for name, threshold in runs.items():
-        outcomes[name] = _fill_and_partition(*arguments, threshold, temperature, config)
+        try:
+            outcomes[name] = _fill_and_partition(*arguments, threshold, temperature, config)
+        except InsufficientDataError as error:
+            if name == "central":
+                raise
+            # a higher u* threshold can leave too few night records for a method: that
+            # scenario is left out of the u* part (computed from the runs that remain)
+            warnings.append(f"u* scenario {name} not computed ({error}); the u* part of the "
+                            "uncertainty uses the remaining runs")
         step(f"gap filling and partitioning ({name})")
 
     too_calm, nee_measured, filled, night, day = outcomes["central"]

@@ -260,3 +260,33 @@ def test_a_different_seed_changes_only_the_random_draw_columns(demo_run):
     for column in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime",
                    "ustar_threshold", "net_uptake_t_co2_per_ha"):
         assert column not in changed
+
+
+def test_a_failing_ustar_scenario_is_left_out_with_a_warning(monkeypatch):
+    """A u* scenario whose higher threshold leaves a method too few night records is left
+    out of the u* part (with a warning) instead of stopping the run; the central run is not
+    (wiring test, issue 11)."""
+    import fluxpart
+    from fluxpart import pipeline
+    from fluxpart.errors import InsufficientDataError
+
+    real = pipeline._fill_and_partition
+    calls = []
+
+    def failing_highest(*args, **kwargs):
+        threshold = args[5]
+        calls.append(float(np.nanmax(threshold)))
+        if len(calls) == 4:                          # the last scenario run (p84)
+            raise InsufficientDataError("no acceptable Lloyd–Taylor window (test)")
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(pipeline, "_fill_and_partition", failing_highest)
+    frame, _ = fluxpart.demo.site_year(seed=0)
+    frame = frame.loc["2021-04-01":"2021-07-29"]
+    config = fluxpart.Config(ustar_bootstrap_draws=10, clock_check="off")
+    with pytest.warns(fluxpart.FluxpartWarning):
+        result = fluxpart.process(frame, fluxpart.demo.SITE, config)
+    assert len(calls) == 4
+    assert any("u* scenario ustar_p84 not computed" in w for w in result.warnings)
+    assert np.isfinite(result.annual["nee_uncertainty_ustar"]).all()
+    assert "nee_ustar_p84" not in result.annual.columns

@@ -129,3 +129,25 @@ def test_the_run_records_the_choice_and_both_criterion_values():
         record["records"] * math.log(ssr["tsoil"] / ssr["tair"]), rel=1e-9)
     assert record["chosen"] == ("tsoil" if ssr["tsoil"] < ssr["tair"] else "tair")
     assert not any("respiration" in text for text in result.warnings)
+
+
+def test_a_near_tie_keeps_air_temperature():
+    """ΔBIC within 2 is no positive evidence (Kass & Raftery 1995, J. Am. Stat. Assoc.
+    90:773–795, (m)): air temperature, the conventional driver, is kept. Invented night
+    NEE on Lloyd & Taylor (1994) eq. 11 of air temperature, with a soil temperature that
+    differs from it by 0.05 K noise only: with this seed soil fits marginally better
+    (ΔBIC -0.24), which must not switch the driver."""
+    from fluxpart.partition import temperature_choice as tc
+
+    assert tc.MIN_EVIDENCE_BIC == 2.0
+    rng = np.random.default_rng(10)
+    index = pd.date_range("2021-01-01", periods=48 * 120, freq="30min")
+    night = (index.hour < 5) | (index.hour >= 21)
+    seasonal = 10 + 8 * np.sin(2 * np.pi * (index.day_of_year - 100) / 365)
+    tair = seasonal + rng.normal(0, 1.5, len(index))
+    tsoil = tair + rng.normal(0, 0.05, len(index))     # indistinguishable from tair
+    nee = 2.0 * np.exp(308.56 * (1 / 56.02 - 1 / (tair + 273.15 - 227.13)))
+    nee = np.where(night, nee + rng.normal(0, 0.5, len(index)), np.nan)
+    choice = tc.choose_respiration_temperature(index, nee, tair, tsoil, night)
+    assert -2.0 < choice.delta_bic < 0.0
+    assert choice.driver == "tair" and "equally well" in choice.reason

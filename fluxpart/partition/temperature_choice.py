@@ -31,6 +31,12 @@ MIN_SHARED_RECORDS = 10
 """Fewest night records both fits must cover for a comparison (as in
 :func:`fluxpart.uncertainty.driver_weight`)."""
 
+MIN_EVIDENCE_BIC = 2.0
+"""Soil temperature replaces the conventional air temperature (Reichstein et al. 2005)
+only when its BIC is lower by more than this: a difference of 2 is where "positive"
+evidence starts on the scale of Kass & Raftery (1995), J. Am. Stat. Assoc. 90:773–795;
+below it the two temperatures explain the night data equally well."""
+
 
 @dataclass(frozen=True)
 class TemperatureChoice:
@@ -121,6 +127,8 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439.
     Schwarz, G. (1978). Estimating the dimension of a model. Annals of
     Statistics 6:461–464.
+    Kass, R. E. & Raftery, A. E. (1995). Bayes factors. Journal of the American
+    Statistical Association 90:773–795 (ΔBIC > 2: positive evidence) (m).
     """
     nee = np.asarray(nee_measured, dtype=float)
     night = np.asarray(is_night, dtype=bool)
@@ -142,10 +150,15 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
                                  ssr, count, np.nan, np.nan)
     delta_bic = count * float(np.log(ssr["tsoil"] / ssr["tair"]))
     weight = driver_weight(nee, shared, reco["tair"], reco["tsoil"])
-    driver = "tsoil" if delta_bic < 0 else "tair"
-    name = {"tair": "air", "tsoil": "soil"}[driver]
-    reason = (f"{name} temperature explains the measured night NEE better "
-              f"(ΔBIC soil - air = {delta_bic:.1f} over {count} records)")
+    driver = "tsoil" if delta_bic < -MIN_EVIDENCE_BIC else "tair"
+    if driver == "tair" and delta_bic < 0:
+        reason = (f"soil and air temperature explain the measured night NEE equally well "
+                  f"(ΔBIC soil - air = {delta_bic:.1f} over {count} records, within "
+                  f"{MIN_EVIDENCE_BIC:g}): air temperature kept")
+    else:
+        name = {"tair": "air", "tsoil": "soil"}[driver]
+        reason = (f"{name} temperature explains the measured night NEE better "
+                  f"(ΔBIC soil - air = {delta_bic:.1f} over {count} records)")
     return TemperatureChoice(driver, reason, ssr, count, delta_bic, weight)
 
 
