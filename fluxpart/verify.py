@@ -696,6 +696,20 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
             differences.append(Difference(name, "file", stored=entry["file"],
                                           recomputed=f"unreadable: {error}"))
     environment, code_changed = _environment(manifest)
+    provenance = manifest["provenance"]
+    if "demo" not in provenance and not (isinstance(provenance.get("input"), dict)
+                                         and isinstance(provenance.get("site_config"), dict)):
+        # written from Python (Result.write) without an input file: only the folder's
+        # integrity can be checked, and a tampered folder is still a failed verification
+        if differences:
+            return VerifyReport(directory=directory, source="none",
+                                tables=tuple(sorted(stored_tables)),
+                                differences=tuple(differences), environment=tuple(environment),
+                                code_changed=code_changed, exact=exact, notes=())
+        raise InputFileError("verify: the folder matches its manifest (seal and every table's "
+                             "SHA-256), but the manifest records neither an input file and site "
+                             "config (fluxpart run) nor a demo seed (fluxpart demo), so the "
+                             "result cannot be recomputed")
     notes, rounding = [], []
     with tempfile.TemporaryDirectory(prefix="fluxpart-verify-") as scratch:
         scratch = Path(scratch)

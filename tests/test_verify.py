@@ -270,3 +270,26 @@ def test_several_input_files_are_found_or_given_once_each(tmp_path, capsys):
     assert "once for each" in capsys.readouterr().err
     assert main(["verify", str(alone), "--input", str(moved / "part1.csv"),
                  "--input", str(moved / "part2.csv")]) == 0
+
+
+def test_python_written_result_is_checked_for_integrity_before_refusing(tmp_path, capsys):
+    """Result.write without an input file: an intact folder exits 2 saying it matches its
+    manifest but cannot be recomputed; a tampered table is still a failed verification
+    (exit 1) that names the table whose SHA-256 no longer matches (review finding)."""
+    frame, _ = demo.site_year(seed=0)
+    result = process(frame.iloc[:SHORT_RECORDS], demo.site(),
+                     Config(ustar_method="fixed", random_error_draws=20, clock_check="off"))
+    folder = result.write(tmp_path / "py")
+    assert main(["verify", str(folder)]) == 2
+    assert "matches its manifest" in capsys.readouterr().err
+    table = folder / "annual.parquet"
+    data = pq.read_table(table)
+    column = data.column_names.index("nee")
+    data = data.set_column(column, "nee", pa.array([v + 1.0 for v in
+                                                    data.column("nee").to_pylist()]))
+    pq.write_table(data, table)
+    report = verify(folder)
+    assert report.exit_code == 1 and report.source == "none"
+    assert any(d.kind == "hash" and d.table == "annual" for d in report.differences)
+    assert main(["verify", str(folder)]) == 1
+    assert "annual" in capsys.readouterr().out
