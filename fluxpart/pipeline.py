@@ -686,9 +686,11 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
             if config.year_start != "01-01":
                 last = row["period_end"] - pd.Timedelta(days=1)
                 year = f"budget year {year} ({row['period_start']:%Y-%m-%d} to {last:%Y-%m-%d})"
+            months = 12.0 * row["records"] / row["records_expected"]
             warnings.append(f"{year} is a partial or not fully filled year "
-                            f"({int(row['records'])} of {int(row['records_expected'])} records): "
-                            "its sums are not annual totals and are not scaled up")
+                            f"({int(row['records'])} of {int(row['records_expected'])} records, "
+                            f"{months:.1f} months): its sums are not annual totals and are not "
+                            "scaled up")
     for text in warnings:
         _warnings.warn(text, FluxpartWarning, stacklevel=2)
     facts = schema.file_metadata(site, interval)

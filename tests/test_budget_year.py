@@ -160,3 +160,20 @@ def test_cli_names_the_budget_year_periods(two_years):
     text = _format_annual(budgets.annual)
     assert "2019 = 2019-09-01 to 2020-08-31" in text
     assert "Budget years" not in _format_annual(aggregate(frame, 30).annual)
+
+
+def test_partial_year_warning_states_its_months():
+    """A partial year's warning says how many months of records it holds (issue 13: partial
+    years stated as months): 60 days of a non-leap year are 60 / 365 x 12 = 1.97 months
+    (calendar arithmetic)."""
+    import warnings
+
+    import fluxpart
+
+    frame, _ = fluxpart.demo.site_year(seed=0)
+    frame = frame.loc["2021-05-01":"2021-06-29"]
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        result = fluxpart.process(frame, fluxpart.demo.SITE,
+                                  fluxpart.Config(ustar_method="fixed", clock_check="off"))
+    assert any("2021 is a partial" in w and "2.0 months" in w for w in result.warnings)
