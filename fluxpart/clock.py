@@ -243,7 +243,8 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
         ``shift_minutes`` (lag of Rg behind the sun [min], positive = Rg later),
         ``correlation`` (at that lag), ``rg_daily`` (clear-day, i.e.
         :data:`ENVELOPE_QUANTILE`, daily mean Rg [W m-2]), ``potential_daily``
-        (mean potential radiation [W m-2]), ``used`` (bool) and ``reason`` (why a
+        (mean potential radiation [W m-2]), ``flipped_daily`` (the same at the
+        latitude of the other sign [W m-2]), ``used`` (bool) and ``reason`` (why a
         month was not used).
 
     References
@@ -278,7 +279,7 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
                "days": int(in_month.sum()), "shift_minutes": np.nan, "correlation": np.nan,
                "edge_shift_minutes": np.nan, "sun_sets": False, "daylength_rg": np.nan,
                "daylength_potential": np.nan, "daylength_flipped": np.nan,
-               "rg_daily": np.nan, "potential_daily": np.nan,
+               "rg_daily": np.nan, "potential_daily": np.nan, "flipped_daily": np.nan,
                "used": False, "reason": ""}
         rows.append(row)
         if row["days"] < MIN_DAYS_PER_WINDOW:
@@ -289,7 +290,9 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
         mask = present[in_month]
         composite = {lag: np.nanmean(np.where(mask, matrix[in_month], np.nan), axis=0)
                      for lag, matrix in fine.items()}
+        flipped_composite = np.nanmean(np.where(mask, flipped_matrix[in_month], np.nan), axis=0)
         row["potential_daily"] = float(np.nanmean(composite[0.0]))
+        row["flipped_daily"] = float(np.nanmean(flipped_composite))
         daily_rg = np.nanmean(block, axis=1)
         row["rg_daily"] = float(np.quantile(daily_rg, ENVELOPE_QUANTILE))
         if np.ptp(composite[0.0]) < MIN_DIURNAL_RANGE:
@@ -320,7 +323,6 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
             _crossings(envelope, interval, EDGE_LEVEL),
             _crossings(composite[0.0], interval, EDGE_LEVEL))
         row["edge_shift_minutes"] = float((rg_middle - sun_middle + 720.0) % 1440.0 - 720.0)
-        flipped_composite = np.nanmean(np.where(mask, flipped_matrix[in_month], np.nan), axis=0)
         row["sun_sets"] = bool(np.nanmin(composite[0.0]) < 1.0)
         row["daylength_rg"] = rg_width
         row["daylength_potential"] = sun_width
@@ -333,7 +335,7 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
         row["used"] = True
     table = pd.DataFrame(rows).set_index("month_start") if rows else pd.DataFrame(
         columns=["month", "days", "shift_minutes", "correlation", "rg_daily",
-                 "potential_daily", "used", "reason"])
+                 "potential_daily", "flipped_daily", "used", "reason"])
     return table
 
 
@@ -387,10 +389,7 @@ def check_hemisphere(index, rg, latitude, longitude, utc_offset, interval_minute
     if len(enough) < 3:
         return "cannot_judge", (f"hemisphere not judged: {len(enough)} month(s) with "
                                 f"{MIN_DAYS_PER_WINDOW} or more days of Rg (3 needed)")
-    index = pd.DatetimeIndex(index)
-    flipped = potential_radiation(index, -latitude, longitude, utc_offset, interval_minutes)
-    flipped_monthly = pd.Series(flipped, index=index).groupby(index.to_period("M")).mean()
-    q = flipped_monthly.reindex(enough.index.to_period("M")).to_numpy()
+    q = enough["flipped_daily"].to_numpy()
     e = enough["rg_daily"].to_numpy()
     p = enough["potential_daily"].to_numpy()
     contrast = float(np.nanstd(np.log((p + 5.0) / (q + 5.0))))
