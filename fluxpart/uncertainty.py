@@ -55,6 +55,7 @@ Agricultural and Forest Meteorology 147, 199–208. doi:10.1016/j.agrformet.2007
 from __future__ import annotations
 
 from dataclasses import dataclass
+from statistics import NormalDist
 
 import numpy as np
 import pandas as pd
@@ -799,8 +800,6 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
     CO2 flux record. Agric. For. Meteorol. 147, 199–208.
     doi:10.1016/j.agrformet.2007.06.004
     """
-    from scipy.optimize import nnls
-
     needed = {"record_class", "records", "error_sum", "noise_variance"}
     if not needed <= set(errors.columns):
         raise MissingColumnError(f"gapfill_error_model: errors lack {sorted(needed - set(errors.columns))}; "
@@ -818,7 +817,7 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
         bias = total.sum() / count.sum()
         centred = total - bias * count
         excess = np.square(centred) - part["noise_variance"].to_numpy(dtype=float)
-        (a, b), _ = nnls(np.column_stack([np.ones_like(count), count]), excess / count)
+        a, b = _nonnegative_line_fit(count, excess / count)
         rows[name] = {"bias": float(bias),
                       "bias_se": float(np.sqrt(np.square(centred).sum()) / count.sum()),
                       "independent_variance": float(a), "correlated_variance": float(b),
@@ -826,6 +825,31 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
     table = pd.DataFrame.from_dict(rows, orient="index")
     table.index.name = "record_class"
     return table
+
+
+def _nonnegative_line_fit(x: np.ndarray, y: np.ndarray) -> tuple[float, float]:
+    """Least-squares ``y ≈ a + b·x`` with ``a, b ≥ 0`` (two-variable non-negative least squares).
+
+    Exact: the objective is a convex quadratic, so its minimum over the quadrant
+    lies at the unconstrained solution when that is feasible, else on one of the
+    faces ``b = 0`` (a = max(mean y, 0)) or ``a = 0`` (b = max(Σxy / Σx², 0)); the
+    feasible candidate with the smallest residual is the solution. This replaces a
+    general NNLS solver for the two parameters of :func:`gapfill_error_model`
+    (checked against ``scipy.optimize.nnls`` in the tests).
+    """
+    x = np.asarray(x, dtype=float)
+    y = np.asarray(y, dtype=float)
+    candidates = [(max(float(y.mean()), 0.0), 0.0), (0.0, 0.0)]
+    xx = float(np.dot(x, x))
+    if xx > 0:
+        candidates.append((0.0, max(float(np.dot(x, y)) / xx, 0.0)))
+    design = np.column_stack([np.ones_like(x), x])
+    if np.linalg.matrix_rank(design) == 2:
+        a, b = np.linalg.lstsq(design, y, rcond=None)[0]
+        if a >= 0 and b >= 0:
+            return float(a), float(b)
+    residual = [float(np.sum(np.square(y - a - b * x))) for a, b in candidates]
+    return candidates[int(np.argmin(residual))]
 
 
 # --------------------------------------------------------------------------- parameters
@@ -1002,10 +1026,8 @@ def ustar_sigma(sums: pd.DataFrame, percentiles) -> pd.Series:
         the 5–95 range over 3.29. The range over all runs is used because the
         sum need not be monotonic in the threshold. NaN without scenarios.
     """
-    from scipy.stats import norm
-
     z = {"central": 0.0}
-    z.update({f"ustar_p{p:02d}": float(norm.ppf(p / 100.0)) for p in percentiles})
+    z.update({f"ustar_p{p:02d}": NormalDist().inv_cdf(p / 100.0) for p in percentiles})
     runs = [c for c in sums.columns if c in z]
     spans = [z[c] for c in runs]
     if len(runs) < 2 or max(spans) - min(spans) <= 0:
@@ -1393,8 +1415,6 @@ def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame,
     Caution: systematic errors are not included; defer to the applicable
     crediting methodology and accredited verification.
     """
-    from scipy.stats import norm
-
     needed = ("random_sd", "random_percentile_2_5", "random_percentile_97_5", "analytic_sd")
     absent = [c for c in needed if c not in random.columns]
     if absent:
@@ -1431,7 +1451,7 @@ def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame,
             np.square(parts["gpp_nighttime_uncertainty_total"]) - np.square(analytic)
             + np.square(random_part.fillna(0.0)), 0.0))
     out["gpp_nighttime_uncertainty_random"] = random_part
-    z = float(norm.ppf(0.5 + confidence / 2.0))
+    z = NormalDist().inv_cdf(0.5 + confidence / 2.0)
     for flux in _FLUXES:
         sigma = out[f"{flux}_uncertainty_total"]
         value = annual[flux].astype(float) if flux in annual.columns else np.nan

@@ -358,6 +358,36 @@ def test_gapfill_error_model_recovers_planted_variances_and_bias():
     assert np.isnan(model.loc["day", "bias"])          # no day scores
 
 
+def test_two_variable_nonnegative_fit_matches_scipy_nnls():
+    """The enumerated two-variable NNLS equals scipy.optimize.nnls (a general-purpose
+    reference solver) on interior, boundary and all-zero optima."""
+    from scipy.optimize import nnls
+
+    from fluxpart.uncertainty import _nonnegative_line_fit
+
+    rng = np.random.default_rng(17)
+    faces = {"interior": 0, "a=0": 0, "b=0": 0, "zero": 0}
+    for _trial in range(400):
+        x = rng.integers(1, 120, size=int(rng.integers(3, 60))).astype(float)
+        a, b = rng.normal(0, 2), rng.normal(0, 0.05)
+        y = a + b * x + rng.normal(0, rng.uniform(0.1, 5.0), x.size)
+        expected, _ = nnls(np.column_stack([np.ones_like(x), x]), y)
+        got = _nonnegative_line_fit(x, y)
+        np.testing.assert_allclose(got, expected, rtol=1e-9, atol=1e-12)
+        key = ("zero" if not any(got) else "a=0" if got[0] == 0 else
+               "b=0" if got[1] == 0 else "interior")
+        faces[key] += 1
+    assert all(count > 0 for count in faces.values()), faces   # every case was exercised
+
+
+def test_normal_quantiles_match_scipy():
+    """statistics.NormalDist().inv_cdf, used for the z values, equals scipy.stats.norm.ppf."""
+    from statistics import NormalDist
+
+    for p in (0.025, 0.05, 0.159, 0.16, 0.5, 0.84, 0.841, 0.95, 0.975):
+        assert NormalDist().inv_cdf(p) == pytest.approx(stats.norm.ppf(p), rel=1e-14, abs=1e-15)
+
+
 def test_artificial_gaps_score_a_biased_fill():
     """A fill that returns truth + 0.5 shows a bias of 0.5 against noisy measured records."""
     rng = np.random.default_rng(2)
