@@ -262,3 +262,21 @@ def test_staging_left_by_an_earlier_version_is_removed(short_result, tmp_path):
     (mine / "notes.txt").write_text("not a table")
     short_result.write(tmp_path / "out")
     assert not old.exists() and (mine / "notes.txt").exists()
+
+
+def test_platform_record_does_not_depend_on_importing_scipy():
+    """The BLAS record is the same whether or not scipy.linalg was imported before
+    (the record loads SciPy's BLAS itself; threadpoolctl lists loaded libraries)."""
+    script = ("import json, sys\n"
+              "from fluxpart.fingerprint import platform_record\n"
+              "first = platform_record()\n"
+              "assert 'scipy.linalg' not in sys.modules\n"
+              "import scipy.linalg\n"
+              "print(json.dumps([first, platform_record()], sort_keys=True))\n")
+    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True,
+                          check=True)
+    import json
+
+    first, second = json.loads(done.stdout)
+    assert first == second
+    assert any(entry["user_api"] == "blas" for entry in first["blas"])
