@@ -52,6 +52,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from ._quantile import nanquantile
 from .solar import potential_radiation
 
 __all__ = [
@@ -183,33 +184,6 @@ def _day_slot_matrix(index: pd.DatetimeIndex, values: np.ndarray, interval_minut
     return matrix, days
 
 
-def _nanquantile_columns(block: np.ndarray, q: float) -> np.ndarray:
-    """``np.nanquantile(block, q, axis=0)`` (linear interpolation) by one sort of the block.
-
-    NumPy's version runs a Python-level loop over the columns when NaNs are present;
-    this sorts once (NaNs last), takes the two neighbouring order statistics at the
-    virtual index ``(n − 1)·q`` of each column's n valid values and interpolates them
-    with NumPy's own formula, so the result is the same to the last bit. A column
-    without valid values gives NaN.
-    """
-    ordered = np.sort(block, axis=0)
-    count = np.count_nonzero(~np.isnan(block), axis=0)
-    virtual = (count - 1) * q
-    lower = np.floor(virtual)
-    gamma = virtual - lower
-    last = np.maximum(count - 1, 0)
-    below = np.minimum(lower.astype(np.intp), last)
-    above = np.where(virtual >= count - 1, last, below + 1)
-    below = np.where(virtual >= count - 1, last, below)
-    columns = np.arange(block.shape[1])
-    a, b = ordered[below, columns], ordered[above, columns]
-    difference = b - a
-    result = a + difference * gamma
-    np.subtract(b, difference * (1 - gamma), out=result, where=gamma >= 0.5)
-    result[count == 0] = np.nan
-    return result
-
-
 def _correlation(envelope: np.ndarray, model: np.ndarray) -> float:
     ok = np.isfinite(envelope) & np.isfinite(model)
     if ok.sum() < 4:
@@ -313,7 +287,7 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
             row["reason"] = f"{row['days']} days with Rg (fewer than {MIN_DAYS_PER_WINDOW})"
             continue
         block = np.where(present[in_month], rg_matrix[in_month], np.nan)
-        envelope = _nanquantile_columns(block, ENVELOPE_QUANTILE)
+        envelope = nanquantile(block, ENVELOPE_QUANTILE, axis=0)
         mask = present[in_month]
         composite = {lag: np.nanmean(np.where(mask, matrix[in_month], np.nan), axis=0)
                      for lag, matrix in fine.items()}

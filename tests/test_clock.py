@@ -201,23 +201,3 @@ def test_clock_off_for_part_of_the_record_is_named():
     assert verdict.status == "shifted"
     assert "from 2022-03 to 2022-12" in verdict.problems[0]
 
-
-def test_column_quantile_equals_numpy_nanquantile():
-    """The one-sort column quantile equals numpy.nanquantile(axis=0, linear) bit for bit,
-    with NaNs, ties, all-NaN columns and the end quantiles (numpy as the reference)."""
-    import warnings
-
-    from fluxpart.clock import _nanquantile_columns
-
-    rng = np.random.default_rng(12)
-    for _ in range(60):
-        rows, columns = rng.integers(1, 35), rng.integers(1, 50)
-        block = rng.normal(300.0, 200.0, size=(rows, columns))
-        block[rng.random((rows, columns)) < rng.uniform(0.0, 0.9)] = np.nan
-        if rng.random() < 0.3:
-            block = np.round(block, -2)                  # ties
-        for q in (0.0, 0.1, 0.5, 0.9, 1.0, 1.0 / 3.0):
-            with warnings.catch_warnings():
-                warnings.simplefilter("ignore", RuntimeWarning)   # all-NaN columns
-                expected = np.nanquantile(block, q, axis=0)
-            np.testing.assert_array_equal(_nanquantile_columns(block, q), expected)

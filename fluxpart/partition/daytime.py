@@ -105,6 +105,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from .._quantile import nanquantile
 from .._validate import as_float
 from ..constants import KELVIN_OFFSET, LLOYD_TAYLOR_T0_KELVIN, LLOYD_TAYLOR_TREF_KELVIN
 from ..errors import (
@@ -765,7 +766,7 @@ def _starting_values(windows, rref_night, lower, upper) -> np.ndarray:
     spread = np.zeros(count)
     has_day = mask.any(axis=1)
     if has_day.any():
-        quantiles = np.nanquantile(day_nee[has_day], [0.03, 0.97], axis=1)
+        quantiles = nanquantile(day_nee[has_day], [0.03, 0.97], axis=1)
         spread[has_day] = np.abs(quantiles[1] - quantiles[0])
     theta[:, _BETA0] = np.clip(spread, 1.0, 0.9 * upper[_BETA0])
     theta[:, _K] = 0.0
@@ -996,7 +997,7 @@ def _reject_offsets(theta, windows, status, reason):
     has_day = windows["day"].any(axis=1)
     lowest = np.full(len(theta), np.nan)
     if has_day.any():
-        lowest[has_day] = np.nanquantile(day_rg[has_day], 0.05, axis=1)
+        lowest[has_day] = nanquantile(day_rg[has_day], 0.05, axis=1)
     with np.errstate(divide="ignore", invalid="ignore"):
         half_saturation = theta[:, _BETA0] / theta[:, _ALPHA]
         flat = (status != "rejected") & (theta[:, _ALPHA] > 0) & (half_saturation < lowest)
