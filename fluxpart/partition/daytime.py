@@ -810,32 +810,127 @@ def _levenberg_marquardt(theta, fixed, lower, upper, windows, mask, vpd0, max_it
     Gauss–Newton step would move the fit by less than 0.01 standard errors
     (``delta^T J^T J delta <= 1e-4 s^2``), or when no damping gives a smaller
     cost (our choices of tolerance).
+
+    For speed, each window's usable records are packed to the left of a narrow
+    array once, a trial point is evaluated without its Jacobian, and ``J^T J`` and
+    ``J^T r`` are recomputed only where a step was accepted (a rejected step leaves
+    the point, so they are unchanged); windows leave the arrays as they converge.
     """
     theta = theta.copy()
     count = len(theta)
     damping = np.full(count, _LAMBDA_START)
     done = fixed.all(axis=1)
     converged = done.copy()
+    active = np.flatnonzero(~done)
+    if len(active) == 0:
+        return theta, converged
+    data = _packed_fit_data(windows, mask, active, vpd0)
+    current = theta[active]
+    cost, parts = _cost(current, data)
+    gradient, normal = _normal_equations(data, parts)
     for _ in range(max_iterations):
-        active = np.flatnonzero(~done)
-        if len(active) == 0:
-            break
-        subset = {name: windows[name][active] for name in _MODEL_INPUTS}
-        theta[active], damping[active], finished = _marquardt_step(
-            theta[active], fixed[active], lower, upper, subset, mask[active], vpd0,
-            damping[active])
+        trial, negligible = _marquardt_step(current, fixed[active], lower, upper, gradient,
+                                            normal, cost, data["points"], damping[active])
+        trial_cost, trial_parts = _cost(trial, data)
+        better = ~negligible & np.isfinite(trial_cost) & (trial_cost <= cost)
+        small_change = better & ((cost - trial_cost) <= _FTOL * np.maximum(cost, 1e-300))
+        small_step = better & np.all(np.abs(trial - current) <= _XTOL * (np.abs(current) + _XTOL),
+                                     axis=1)
+        damping[active] = np.where(negligible, damping[active],
+                                   np.where(better, damping[active] / 3.0, damping[active] * 4.0))
+        finished = negligible | small_change | small_step | (damping[active] > _LAMBDA_MAX)
+        current = np.where(better[:, None], trial, current)
+        theta[active] = current
         converged[active] = finished
-        done[active] = finished
+        if finished.all():
+            break
+        cost = np.where(better, trial_cost, cost)
+        if better.any():
+            moved = _take_rows({**data, **trial_parts}, better)
+            gradient[better], normal[better] = _normal_equations(moved, moved)
+        if finished.any():
+            left = ~finished
+            active, current, cost = active[left], current[left], cost[left]
+            gradient, normal = gradient[left], normal[left]
+            data = _take_rows(data, left)
     return theta, converged
 
 
-def _marquardt_step(theta, fixed, lower, upper, windows, mask, vpd0, damping):
-    """One damped, bounded Gauss–Newton step for each window; returns convergence."""
-    identity = np.eye(4)
+def _packed_fit_data(windows, mask, rows, vpd0) -> dict:
+    """The fit inputs of the chosen windows, their usable records packed to the left.
+
+    Returns light [W m-2], VPD above `vpd0` [hPa], the Lloyd–Taylor factor, NEE and
+    the weight (zero where a record is not in the fit), each (windows x width), the
+    width being the most usable records of any chosen window, and ``points``.
+    """
+    mask = mask[rows]
     points = mask.sum(axis=1)
-    residual, jacobian, cost = _residuals(theta, windows, mask, vpd0)
-    gradient = np.einsum("wpi,wp->wi", jacobian, residual)
-    normal = np.einsum("wpi,wpj->wij", jacobian, jacobian)
+    width = max(1, int(points.max()))
+    order = np.argsort(~mask, axis=1, kind="stable")[:, :width]
+    picked = np.take_along_axis(mask, order, axis=1)
+
+    def pack(values):
+        return np.where(picked, np.take_along_axis(values[rows], order, axis=1), 0.0)
+
+    light = np.clip(pack(windows["rg"]), 0.0, None)
+    vpd_excess = pack(windows["vpd"]) - vpd0
+    factor = pack(windows["factor"])
+    weight = pack(windows["weight"])
+    return {"light": light, "excess": np.where(vpd_excess > 0.0, vpd_excess, 0.0),
+            "factor": factor, "nee": pack(windows["nee"]), "weight": weight,
+            "factor_weight": factor * weight, "points": points}
+
+
+def _take_rows(arrays: dict, rows) -> dict:
+    return {name: values[rows] for name, values in arrays.items()}
+
+
+def _cost(theta, data):
+    """Half the weighted sum of squares per window, and the parts its Jacobian reuses.
+
+    The model is that of :func:`_model` (Lasslop et al. 2010 light response minus
+    Lloyd–Taylor Reco), evaluated on the packed arrays of :func:`_packed_fit_data`.
+    """
+    alpha, beta0, k, rref = (theta[:, column, None] for column in range(4))
+    with np.errstate(over="ignore", invalid="ignore"):
+        reduction = np.exp(-k * data["excess"])
+        beta = beta0 * reduction
+        assimilation = alpha * data["light"]
+        denominator = assimilation + beta
+        inverse = np.divide(1.0, denominator, out=np.zeros_like(denominator),
+                            where=denominator != 0.0)
+        gpp = assimilation * beta * inverse
+        residual = (rref * data["factor"] - gpp - data["nee"]) * data["weight"]
+        cost = 0.5 * np.square(residual).sum(axis=1)
+    return cost, {"residual": residual, "reduction": reduction, "beta": beta,
+                  "assimilation": assimilation, "inverse": inverse}
+
+
+def _normal_equations(data, parts):
+    """``J^T r`` (windows x 4) and ``J^T J`` (windows x 4 x 4) of the weighted residuals.
+
+    Derivatives as :func:`fluxpart.responses.light_response_derivatives`.
+    """
+    weight, beta, inverse = data["weight"], parts["beta"], parts["inverse"]
+    with np.errstate(over="ignore", invalid="ignore"):
+        inverse_square = inverse * inverse
+        d_beta = np.square(parts["assimilation"]) * inverse_square * weight
+        jacobian = np.stack([-np.square(beta) * data["light"] * inverse_square * weight,
+                             -d_beta * parts["reduction"],
+                             d_beta * beta * data["excess"],
+                             data["factor_weight"]], axis=1)
+        gradient = (jacobian @ parts["residual"][:, :, None])[:, :, 0]
+        normal = jacobian @ jacobian.transpose(0, 2, 1)
+    return gradient, normal
+
+
+def _marquardt_step(theta, fixed, lower, upper, gradient, normal, cost, points, damping):
+    """One damped, bounded Gauss–Newton trial point for each window.
+
+    Returns the trial point and whether the remaining Gauss–Newton step is negligible
+    (the window has converged).
+    """
+    identity = np.eye(4)
     diagonal = np.diagonal(normal, axis1=1, axis2=2)
     hold = (fixed | ((theta <= lower) & (gradient > 0)) | ((theta >= upper) & (gradient < 0))
             | (diagonal <= 0))
@@ -843,24 +938,16 @@ def _marquardt_step(theta, fixed, lower, upper, windows, mask, vpd0, damping):
     pair = keep[:, :, None] & keep[:, None, :]
     descent = np.where(keep, -gradient, 0.0)[:, :, None]
     scaling = diagonal[:, :, None] * identity
-    undamped = np.where(pair, normal + 1e-12 * scaling, 0.0) + hold[:, :, None] * identity
+    held = hold[:, :, None] * identity
+    undamped = np.where(pair, normal + 1e-12 * scaling, 0.0) + held
     newton_step = np.linalg.solve(undamped, descent)[:, :, 0]
-    predicted = np.einsum("wi,wi->w", newton_step, -gradient * keep)
+    predicted = (newton_step * (-gradient * keep)).sum(axis=1)
     variance = 2.0 * cost / np.maximum(points - keep.sum(axis=1), 1)
     negligible = predicted <= (_SE_TOL**2) * variance
-    damped = np.where(pair, normal + damping[:, None, None] * scaling, 0.0)
-    damped = damped + hold[:, :, None] * identity
+    damped = np.where(pair, normal + damping[:, None, None] * scaling, 0.0) + held
     step = np.linalg.solve(damped, descent)[:, :, 0]
     trial = np.clip(theta + step, lower, upper)
-    _, _, trial_cost = _residuals(trial, windows, mask, vpd0)
-    better = ~negligible & np.isfinite(trial_cost) & (trial_cost <= cost)
-    small_change = better & ((cost - trial_cost) <= _FTOL * np.maximum(cost, 1e-300))
-    small_step = better & np.all(np.abs(trial - theta) <= _XTOL * (np.abs(theta) + _XTOL),
-                                 axis=1)
-    damping = np.where(negligible, damping, np.where(better, damping / 3.0, damping * 4.0))
-    stalled = damping > _LAMBDA_MAX
-    theta = np.where(better[:, None], trial, theta)
-    return theta, damping, negligible | small_change | small_step | stalled
+    return trial, negligible
 
 
 def _standard_errors(theta, fixed, lower, upper, windows, mask, vpd0):
