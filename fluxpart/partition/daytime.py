@@ -657,13 +657,15 @@ def _profile_e0(y, x, w, points, bounds):
     best grid cell refined by golden-section search (the profile is smooth).
     """
     w2 = w**2
+    w2y = w2 * y
+    yy = (w2y * y).sum(axis=1)
 
     def profile(e0):
         f = np.exp(e0[:, None] * x)
-        sf = (w2 * y * f).sum(axis=1)
+        sf = (w2y * f).sum(axis=1)
         ff = (w2 * f * f).sum(axis=1)
         with np.errstate(divide="ignore", invalid="ignore"):
-            return (w2 * y * y).sum(axis=1) - sf**2 / ff, sf / ff
+            return yy - sf**2 / ff, sf / ff
 
     grid = np.arange(bounds[0], bounds[1] + _E0_GRID_STEP / 2, _E0_GRID_STEP)
     grid[-1] = bounds[1]
@@ -682,7 +684,9 @@ def _profile_e0(y, x, w, points, bounds):
         a = np.where(left, a, c)
         new_c, new_d = b - ratio * (b - a), a + ratio * (b - a)
         c, d = np.where(left, new_c, d), np.where(left, c, new_d)
-        fc, fd = np.where(left, profile(c)[0], fd), np.where(left, fc, profile(d)[0])
+        # one new point per row: c where the bracket moved left, d where it moved right
+        fresh = profile(np.where(left, c, d))[0]
+        fc, fd = np.where(left, fresh, fd), np.where(left, fc, fresh)
     e0 = (a + b) / 2.0
     sse, rref = profile(e0)
     f = np.exp(e0[:, None] * x)
