@@ -103,6 +103,41 @@ def _to_datetime(text: pd.Series, time_format: str, utc: bool) -> pd.Series:
                              f"{' '.join(str(error).split())}") from None
 
 
+_CLOCK_FIELD = re.compile(r"%H%M(%S)?")
+
+
+def _pad_clock_fields(text: pd.Series, time_format: str) -> pd.Series:
+    """Zero-pad clock fields written as integers (``30`` for ``0030`` under ``%H%M``).
+
+    Loggers often write the time of day as an integer hhmm in a column of its own
+    (``30``, ``130``, ``2400``). strptime reads the digits of ``%H%M`` greedily, so
+    ``130`` would become 13:00, not 01:30. Where the format, split at single spaces,
+    has a field that is exactly ``%H%M`` (or ``%H%M%S``) and every stamp splits into
+    as many fields, such a field of 1 to 3 (5) digits is padded with leading zeros
+    to 4 (6) digits. Other stamps are returned unchanged.
+    """
+    fields = time_format.split(" ")
+    clock = [i for i, field in enumerate(fields) if _CLOCK_FIELD.fullmatch(field)]
+    if not clock or len(text) == 0:
+        return text
+    parts = text.str.split(" ", expand=True, regex=False)
+    if parts.shape[1] != len(fields) or parts.isna().to_numpy().any():
+        return text
+    padded = False
+    for i in clock:
+        width = 6 if fields[i].endswith("%S") else 4
+        short = parts[i].str.fullmatch(r"\d{1,%d}" % (width - 1)).to_numpy(bool)
+        if short.any():
+            parts[i] = parts[i].str.zfill(width)
+            padded = True
+    if not padded:
+        return text
+    joined = parts[0]
+    for i in range(1, len(fields)):
+        joined = joined + " " + parts[i]
+    return joined
+
+
 def _carries_offset(text: pd.Series, time_format: str) -> bool:
     if "%z" in time_format or "%Z" in time_format:
         return True
@@ -202,6 +237,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                 f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
                 f"{text.iloc[first]!r} without a UTC offset while other stamps carry one; "
                 f"{int(naive.sum())} such stamp(s): give every stamp its offset")
+    text = _pad_clock_fields(text, time_format)
     parsed = _to_datetime(text, time_format, utc=with_offset)
     failed = parsed.isna().to_numpy()
     is_24 = np.zeros(len(text), dtype=bool)

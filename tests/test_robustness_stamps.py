@@ -1,0 +1,53 @@
+"""Robustness of stamp parsing on layouts loggers write (fresh-eyes campaign).
+
+Outside fact: the calendar and clock of Python's ``datetime`` (a record ending at
+00:30 on day-of-year 2 of 2021 is 2021-01-02 00:30).
+"""
+
+from datetime import datetime, timedelta
+
+import numpy as np
+import pandas as pd
+
+from fluxpart.timestamps import parse_stamps
+
+
+def _parse(text, time_format, columns=("Year", "DOY", "HHMM")):
+    series = pd.Series(text)
+    return parse_stamps(series, time_format, time_columns=columns, source="t.dat",
+                        lines=np.arange(2, len(series) + 2)).stamps
+
+
+def _year_doy_hhmm(stamps, hour_24=False):
+    """Year, day of year and time of day as integers, as a logger writes them."""
+    rows = []
+    for stamp in stamps:
+        if hour_24 and stamp.hour == 0 and stamp.minute == 0:
+            day = stamp - timedelta(days=1)
+            rows.append(f"{day.year} {day.timetuple().tm_yday} 2400")
+        else:
+            rows.append(f"{stamp.year} {stamp.timetuple().tm_yday} "
+                        f"{stamp.hour * 100 + stamp.minute}")
+    return rows
+
+
+def test_integer_hhmm_is_not_read_greedily():
+    """'130' under %H%M is 01:30, not 13:00 (strptime alone reads it as 13:00)."""
+    truth = [datetime(2021, 1, 2) + timedelta(minutes=30 * k) for k in range(1, 49)]
+    stamps = _parse(_year_doy_hhmm(truth), "%Y %j %H%M")
+    assert list(stamps) == [pd.Timestamp(t) for t in truth]
+
+
+def test_integer_hhmm_with_hour_24():
+    """Integer hhmm with 2400 for the end of the day: no stamp repeats, none moves."""
+    truth = [datetime(2021, 1, 2) + timedelta(minutes=30 * k) for k in range(1, 97)]
+    stamps = _parse(_year_doy_hhmm(truth, hour_24=True), "%Y %j %H%M")
+    assert list(stamps) == [pd.Timestamp(t) for t in truth]
+
+
+def test_padded_stamps_unchanged():
+    """Zero-padded stamps and other formats read exactly as before."""
+    truth = [datetime(2021, 3, 1) + timedelta(minutes=30 * k) for k in range(48)]
+    text = [t.strftime("%d.%m.%Y %H%M") for t in truth]
+    stamps = _parse(text, "%d.%m.%Y %H%M", columns=("Date", "Time"))
+    assert list(stamps) == [pd.Timestamp(t) for t in truth]
