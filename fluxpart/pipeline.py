@@ -316,7 +316,8 @@ def _chosen_temperature(driver, index, screened, is_night, threshold, config):
         e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
         e0_max_relative_error=config.e0_max_relative_error,
         e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
-        rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points)
+        rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
+        e0_method=config.e0_method)
     return choice.driver, choice
 
 
@@ -493,7 +494,7 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
         e0_max_relative_error=config.e0_max_relative_error,
         e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
         rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
-        respiration_driver=temperature)
+        respiration_driver=temperature, e0_method=config.e0_method)
     day = daytime.partition_daytime(
         frame.index, nee_measured, filled_drivers["rg_filled"].to_numpy(),
         filled_drivers["vpd_filled"].to_numpy(), temperature_filled, is_night,
@@ -748,7 +749,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                 e0_bounds=config.e0_bounds, e0_max_relative_error=config.e0_max_relative_error,
                 e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
                 rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
-                respiration_driver=other).reco
+                respiration_driver=other, e0_method=config.e0_method).reco
         except FluxpartError:
             other_reco = None
     inputs = uncertainty.record_inputs(

@@ -13,7 +13,7 @@ import pytest
 import scipy
 import statsmodels
 import statsmodels.api as sm
-from scipy.optimize import curve_fit
+from scipy.optimize import curve_fit, least_squares
 
 from fluxpart.config import Config
 from fluxpart.errors import (
@@ -25,6 +25,7 @@ from fluxpart.errors import (
 from fluxpart.partition.nighttime import (
     NighttimeResult,
     annual_e0,
+    fit_e0_joint,
     fit_e0_windows,
     fit_rref_windows,
     partition_nighttime,
@@ -125,6 +126,68 @@ def test_every_window_of_a_year_matches_scipy(rng):
         assert window["e0_se"] == pytest.approx(np.sqrt(covariance[1, 1]), rel=0.01)
 
 
+# --------------------------------------------------------------------------- #
+# Joint E0 (one E0, a free Rref per window)
+# --------------------------------------------------------------------------- #
+def test_joint_e0_matches_scipy_least_squares(rng):
+    """The profile fit equals SciPy's least_squares on E0 and every window's Rref together."""
+    index, nee, _, temperature, night, _ = _synthetic(
+        rng, start="2021-04-01 12:00", end="2021-06-30 11:30", e0=200.0, noise=0.3)
+    joint = fit_e0_joint(index, nee, temperature, night)
+    usable = night & np.isfinite(nee)
+    days = np.asarray((index - pd.Timestamp("2021-04-01 12:00")) / pd.Timedelta(days=1))
+    window = np.floor(days[usable] / 15.0).astype(int)
+    t, y = temperature[usable], nee[usable]
+    n_windows = window.max() + 1
+
+    def residuals(p):   # p = (E0, Rref_0 ... Rref_w-1), Lloyd & Taylor (1994) eq. 11
+        return y - _eq11(t, p[1:][window], p[0])
+
+    # SciPy: scipy.optimize.least_squares(residuals, x0, method="lm"); covariance
+    # s² (JᵀJ)⁻¹ with s² = SSR / (n - p), the estimator the profile curvature gives
+    fit = least_squares(residuals, np.r_[300.0, np.ones(n_windows)], method="lm",
+                        xtol=1e-12, ftol=1e-12)
+    s2 = np.sum(fit.fun ** 2) / (y.size - fit.x.size)
+    se = np.sqrt(s2 * np.linalg.inv(fit.jac.T @ fit.jac)[0, 0])
+    row = joint.loc[2021]
+    message = f"scipy {scipy.__version__}"
+    assert row["windows"] == n_windows and row["points"] == y.size
+    assert row["e0"] == pytest.approx(fit.x[0], abs=0.05), message   # 1 K grid + parabola
+    assert row["e0_se"] == pytest.approx(se, rel=0.02), message
+    assert bool(row["accepted"]) and row["reason"] == ""
+
+
+def test_joint_e0_unbiased_where_rref_follows_the_season(rng):
+    """Known truth: Rref rising with temperature through spring does not leak into E0.
+
+    Rref (1 to 3) rises through spring with temperature, so a single window's fit mixes
+    the seasonal rise into E0 (the confounding Reichstein et al. 2005 used short
+    windows against); the joint fit reads E0 from within-window variation only.
+    """
+    index, nee, filled, temperature, night, reco = _synthetic(rng, e0=180.0, noise=0.3)
+    joint = fit_e0_joint(index, nee, temperature, night)
+    assert joint.loc[2021, "e0"] == pytest.approx(180.0, rel=0.08)
+    result = partition_nighttime(index, nee, filled, temperature, temperature, night)
+    assert result.e0_annual.loc[2021, "source"] == "joint"
+    assert result.reco.sum() == pytest.approx(reco.sum(), rel=0.03)
+
+
+def test_joint_e0_not_accepted_falls_back_to_windows(rng):
+    """A year whose joint E0 lands on a bound falls back (windows, then e0_fallback)."""
+    index, nee, filled, temperature, night, _ = _synthetic(rng, e0=220.0, noise=0.2)
+    joint = fit_e0_joint(index, nee, temperature, night, e0_bounds=(30.0, 120.0))
+    assert not joint.loc[2021, "accepted"] and "bound" in joint.loc[2021, "reason"]
+    # every short window is outside the bounds too, so the flagged fall-back applies
+    result = partition_nighttime(index, nee, filled, temperature, temperature, night,
+                                 e0_bounds=(30.0, 120.0), e0_fallback=100.0)
+    assert result.e0_annual.loc[2021, "source"] == "fallback"
+    assert result.e0_annual.loc[2021, "e0"] == 100.0
+    # with the windows' estimate chosen outright, the joint fit is not consulted
+    windows_only = partition_nighttime(index, nee, filled, temperature, temperature, night,
+                                       e0_method="best_windows")
+    assert windows_only.e0_annual.loc[2021, "source"] == "fitted"
+
+
 def test_e0_window_layout_and_columns(rng):
     """15-day windows every 5 days from local noon; a 365-day year gives ~71 windows."""
     index, nee, _, temperature, night, _ = _synthetic(rng)
@@ -158,7 +221,7 @@ def test_recovers_planted_e0_and_reco(rng):
     # annual Reco within 3 % of the truth, the point of the method
     assert result.reco.sum() == pytest.approx(reco_true.sum(), rel=0.03)
     np.testing.assert_allclose(result.gpp, result.reco - filled, rtol=0, atol=0)
-    assert result.e0_annual.loc[2021, "source"] == "fitted"
+    assert result.e0_annual.loc[2021, "source"] == "joint"
 
 
 def test_recovers_seasonal_rref(rng):
@@ -207,10 +270,12 @@ def test_multi_year_e0_per_calendar_year(rng):
 
 
 def test_year_touched_briefly_borrows_overlapping_windows(rng):
-    """A record starting on 30 December: that year takes E0 from the windows overlapping it."""
+    """A record starting on 30 December: that year takes E0 from the windows overlapping it
+    (the best-windows estimate; the joint fit uses the year's own records)."""
     index, nee, filled, temperature, night, _ = _synthetic(
         rng, start="2020-12-30", end="2021-03-31 23:30", e0=220.0, noise=0.15)
-    result = partition_nighttime(index, nee, filled, temperature, temperature, night)
+    result = partition_nighttime(index, nee, filled, temperature, temperature, night,
+                                 e0_method="best_windows")
     annual = result.e0_annual
     assert list(annual.index) == [2020, 2021]
     assert (result.e0_windows["year"] == 2020).sum() == 0
@@ -475,7 +540,8 @@ def test_night_mask_with_missing_values_raises(rng):
                                                 ("e0_bounds", (450.0, 30.0)),
                                                 ("e0_window_days", -1.0),
                                                 ("rref_min_points", 1.5),
-                                                ("respiration_driver", "tsurface")])
+                                                ("respiration_driver", "tsurface"),
+                                                ("e0_method", "median")])
 def test_bad_settings_raise_config_error(rng, setting, value):
     """Invalid settings give a ConfigError naming the setting."""
     index, nee, filled, temperature, night, _ = _synthetic(rng, end="2021-01-31 23:30")
