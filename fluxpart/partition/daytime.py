@@ -821,42 +821,44 @@ def _levenberg_marquardt(theta, fixed, lower, upper, windows, mask, vpd0, max_it
     the point, so they are unchanged); windows leave the arrays as they converge.
     """
     theta = theta.copy()
-    count = len(theta)
-    damping = np.full(count, _LAMBDA_START)
     done = fixed.all(axis=1)
     converged = done.copy()
     active = np.flatnonzero(~done)
     if len(active) == 0:
         return theta, converged
     data = _packed_fit_data(windows, mask, active, vpd0)
-    current = theta[active]
+    current, held = theta[active], fixed[active]
+    damping = np.full(len(active), _LAMBDA_START)
     cost, parts = _cost(current, data)
     gradient, normal = _normal_equations(data, parts)
+    live = np.ones(len(active), dtype=bool)
     for _ in range(max_iterations):
-        trial, negligible = _marquardt_step(current, fixed[active], lower, upper, gradient,
-                                            normal, cost, data["points"], damping[active])
+        trial, negligible = _marquardt_step(current, held, lower, upper, gradient, normal,
+                                            cost, data["points"], damping)
         trial_cost, trial_parts = _cost(trial, data)
-        better = ~negligible & np.isfinite(trial_cost) & (trial_cost <= cost)
+        better = live & ~negligible & np.isfinite(trial_cost) & (trial_cost <= cost)
         small_change = better & ((cost - trial_cost) <= _FTOL * np.maximum(cost, 1e-300))
         small_step = better & np.all(np.abs(trial - current) <= _XTOL * (np.abs(current) + _XTOL),
                                      axis=1)
-        damping[active] = np.where(negligible, damping[active],
-                                   np.where(better, damping[active] / 3.0, damping[active] * 4.0))
-        finished = negligible | small_change | small_step | (damping[active] > _LAMBDA_MAX)
+        damping = np.where(negligible, damping,
+                           np.where(better, damping / 3.0, damping * 4.0))
+        finished = live & (negligible | small_change | small_step | (damping > _LAMBDA_MAX))
         current = np.where(better[:, None], trial, current)
-        theta[active] = current
-        converged[active] = finished
-        if finished.all():
-            break
         cost = np.where(better, trial_cost, cost)
+        theta[active[live]] = current[live]
+        converged[active[finished]] = True
+        live &= ~finished
+        if not live.any():
+            break
         if better.any():
             moved = _take_rows({**data, **trial_parts}, better)
             gradient[better], normal[better] = _normal_equations(moved, moved)
-        if finished.any():
-            left = ~finished
-            active, current, cost = active[left], current[left], cost[left]
-            gradient, normal = gradient[left], normal[left]
-            data = _take_rows(data, left)
+        if live.sum() < 0.75 * len(live):
+            # converged windows leave the arrays once a quarter of them has finished
+            active, current, held, cost, damping = (active[live], current[live], held[live],
+                                                    cost[live], damping[live])
+            gradient, normal, data = gradient[live], normal[live], _take_rows(data, live)
+            live = live[live]
     return theta, converged
 
 
@@ -943,13 +945,16 @@ def _marquardt_step(theta, fixed, lower, upper, gradient, normal, cost, points, 
     descent = np.where(keep, -gradient, 0.0)[:, :, None]
     scaling = diagonal[:, :, None] * identity
     held = hold[:, :, None] * identity
-    undamped = np.where(pair, normal + 1e-12 * scaling, 0.0) + held
-    newton_step = np.linalg.solve(undamped, descent)[:, :, 0]
+    # the undamped (Gauss–Newton) and the damped system, solved in one call
+    factor = np.concatenate([np.full(len(theta), 1e-12), damping])[:, None, None]
+    systems = np.where(np.concatenate([pair, pair]), np.concatenate([normal, normal])
+                       + factor * np.concatenate([scaling, scaling]), 0.0) \
+        + np.concatenate([held, held])
+    steps = np.linalg.solve(systems, np.concatenate([descent, descent]))[:, :, 0]
+    newton_step, step = steps[:len(theta)], steps[len(theta):]
     predicted = (newton_step * (-gradient * keep)).sum(axis=1)
     variance = 2.0 * cost / np.maximum(points - keep.sum(axis=1), 1)
     negligible = predicted <= (_SE_TOL**2) * variance
-    damped = np.where(pair, normal + damping[:, None, None] * scaling, 0.0) + held
-    step = np.linalg.solve(damped, descent)[:, :, 0]
     trial = np.clip(theta + step, lower, upper)
     return trial, negligible
 
