@@ -516,3 +516,45 @@ def test_standard_errors_survive_a_window_with_a_non_finite_jacobian():
     errors, _ = daytime._standard_errors(theta, fixed, lower, upper, windows, mask, 10.0)
     assert np.isfinite(errors[0, [0, 1, 3]]).all()
     assert not np.isfinite(errors[1]).any()
+
+
+def test_packed_fit_cost_and_normal_equations_match_the_response_functions():
+    """The fit's cost, J^T r and J^T J on packed windows equal those built from
+    fluxpart.responses.light_response and light_response_derivatives, and the
+    Jacobian agrees with central finite differences (a fact of calculus)."""
+    from fluxpart.partition import daytime
+    from fluxpart.responses import light_response_derivatives
+
+    rng = np.random.default_rng(8)
+    shape = (6, 50)
+    rg = rng.uniform(5.0, 1000.0, shape)
+    vpd = rng.uniform(0.0, 30.0, shape)
+    factor = rng.uniform(0.5, 2.0, shape)
+    weight = rng.uniform(0.5, 2.0, shape)
+    nee = rng.normal(0.0, 5.0, shape)
+    mask = rng.random(shape) < 0.7
+    windows = {"rg": rg, "vpd": vpd, "factor": factor, "weight": weight, "nee": nee}
+    theta = np.column_stack([rng.uniform(0.01, 0.1, 6), rng.uniform(5.0, 40.0, 6),
+                             rng.uniform(0.0, 0.1, 6), rng.uniform(1.0, 5.0, 6)])
+    data = daytime._packed_fit_data(windows, mask, np.arange(6), 10.0)
+    cost, parts = daytime._cost(theta, data)
+    gradient, normal = daytime._normal_equations(data, parts)
+
+    alpha, beta0, k, rref = (theta[:, i, None] for i in range(4))
+    residual = np.where(mask, (rref * factor - light_response(rg, vpd, alpha, beta0, k, vpd0=10.0)
+                               - nee) * weight, 0.0)
+    d_alpha, d_beta0, d_k = light_response_derivatives(rg, vpd, alpha, beta0, k, vpd0=10.0)
+    jacobian = np.where(mask[:, :, None], np.stack([-d_alpha, -d_beta0, -d_k, factor], -1)
+                        * weight[:, :, None], 0.0)
+    np.testing.assert_allclose(cost, 0.5 * (residual**2).sum(axis=1), rtol=1e-12)
+    np.testing.assert_allclose(gradient, np.einsum("wpi,wp->wi", jacobian, residual),
+                               rtol=1e-10, atol=1e-12)
+    np.testing.assert_allclose(normal, np.einsum("wpi,wpj->wij", jacobian, jacobian),
+                               rtol=1e-10, atol=1e-12)
+    # finite differences of the cost give the gradient J^T r
+    for column in range(4):
+        step = np.zeros_like(theta)
+        step[:, column] = 1e-6 * np.maximum(np.abs(theta[:, column]), 1e-3)
+        numeric = (daytime._cost(theta + step, data)[0] - daytime._cost(theta - step, data)[0]) \
+            / (2.0 * step[:, column])
+        np.testing.assert_allclose(gradient[:, column], numeric, rtol=1e-5, atol=1e-8)

@@ -120,7 +120,6 @@ from ..errors import (
 from ..responses import (
     LASSLOP_VPD0_HPA,
     light_response,
-    light_response_derivatives,
 )
 
 __all__ = ["DaytimeResult", "PARAMETER_COLUMNS", "STATUSES", "partition_daytime"]
@@ -780,28 +779,6 @@ def _starting_values(windows, rref_night, lower, upper) -> np.ndarray:
     return theta
 
 
-def _model(theta, windows, vpd0):
-    """Modelled NEE (windows x records) and its Jacobian (windows x records x 4)."""
-    alpha = theta[:, _ALPHA, None]
-    beta0 = theta[:, _BETA0, None]
-    k = theta[:, _K, None]
-    rref = theta[:, _RREF, None]
-    rg, vpd, factor = windows["rg"], windows["vpd"], windows["factor"]
-    gpp = light_response(rg, vpd, alpha, beta0, k, vpd0=vpd0)
-    d_alpha, d_beta0, d_k = light_response_derivatives(rg, vpd, alpha, beta0, k, vpd0=vpd0)
-    jacobian = np.stack([-d_alpha, -d_beta0, -d_k, factor], axis=-1)
-    return rref * factor - gpp, jacobian
-
-
-def _residuals(theta, windows, mask, vpd0):
-    """Weighted residuals, weighted Jacobian and half the weighted sum of squares."""
-    modelled, jacobian = _model(theta, windows, vpd0)
-    weight = windows["weight"]
-    residual = np.where(mask, (modelled - windows["nee"]) * weight, 0.0)
-    jacobian = np.where(mask[:, :, None], jacobian * weight[:, :, None], 0.0)
-    return residual, jacobian, 0.5 * (residual**2).sum(axis=1)
-
-
 def _levenberg_marquardt(theta, fixed, lower, upper, windows, mask, vpd0, max_iterations):
     """Bounded Levenberg–Marquardt over all windows at once.
 
@@ -884,7 +861,7 @@ def _packed_fit_data(windows, mask, rows, vpd0) -> dict:
     weight = pack(windows["weight"])
     return {"light": light, "excess": np.where(vpd_excess > 0.0, vpd_excess, 0.0),
             "factor": factor, "nee": pack(windows["nee"]), "weight": weight,
-            "factor_weight": factor * weight, "points": points}
+            "factor_weight": factor * weight, "points": points, "inside": picked}
 
 
 def _take_rows(arrays: dict, rows) -> dict:
@@ -894,8 +871,9 @@ def _take_rows(arrays: dict, rows) -> dict:
 def _cost(theta, data):
     """Half the weighted sum of squares per window, and the parts its Jacobian reuses.
 
-    The model is that of :func:`_model` (Lasslop et al. 2010 light response minus
-    Lloyd–Taylor Reco), evaluated on the packed arrays of :func:`_packed_fit_data`.
+    The model: Lloyd–Taylor Reco minus the light response of Lasslop et al. (2010)
+    (:func:`fluxpart.responses.light_response`), on the packed arrays of
+    :func:`_packed_fit_data`.
     """
     alpha, beta0, k, rref = (theta[:, column, None] for column in range(4))
     with np.errstate(over="ignore", invalid="ignore"):
@@ -961,15 +939,18 @@ def _marquardt_step(theta, fixed, lower, upper, gradient, normal, cost, points, 
 
 def _standard_errors(theta, fixed, lower, upper, windows, mask, vpd0):
     """Standard errors from (J^T W J)^-1 s^2 over the free parameters, and the fit RMSE."""
-    residual, jacobian, _ = _residuals(np.nan_to_num(theta), windows, mask, vpd0)
-    modelled, _ = _model(np.nan_to_num(theta), windows, vpd0)
-    points = mask.sum(axis=1)
-    normal = np.einsum("wpi,wpj->wij", jacobian, jacobian)
+    data = _packed_fit_data(windows, mask, np.arange(len(theta)), vpd0)
+    cost, parts = _cost(np.nan_to_num(theta), data)
+    _, normal = _normal_equations(data, parts)
+    points = data["points"]
     diagonal = np.diagonal(normal, axis1=1, axis2=2)
     free = ~fixed & (theta > lower) & (theta < upper) & (diagonal > 0)
     free_count = free.sum(axis=1)
-    sum_squares = (residual**2).sum(axis=1)
-    plain_squares = np.where(mask, (modelled - windows["nee"]) ** 2, 0.0).sum(axis=1)
+    sum_squares = 2.0 * cost
+    gpp = parts["assimilation"] * parts["beta"] * parts["inverse"]
+    with np.errstate(invalid="ignore"):
+        plain = np.nan_to_num(theta)[:, _RREF, None] * data["factor"] - gpp - data["nee"]
+    plain_squares = np.where(data["inside"], np.square(plain), 0.0).sum(axis=1)
     with np.errstate(divide="ignore", invalid="ignore"):
         variance = np.where(points > free_count, sum_squares / (points - free_count), np.nan)
         rmse = np.where(points > 0, np.sqrt(plain_squares / points), np.nan)
