@@ -118,6 +118,33 @@ def _command_demo(args) -> int:
     return 0
 
 
+def _enclosing_result(folder: Path) -> Path | None:
+    """The nearest of `folder` and its parents that is a result folder (has a manifest)."""
+    for candidate in (folder, *folder.parents):
+        if (candidate / "manifest.json").is_file():
+            return candidate
+    return None
+
+
+def _command_report(args) -> int:
+    """``fluxpart report``: refuse an --out inside the result folder but outside report/."""
+    from .errors import OutputError
+    from .report import command_report
+
+    if getattr(args, "out", None) is not None:
+        out = Path(args.out).absolute().resolve()
+        enclosing = _enclosing_result(out)
+        if enclosing is not None and not (out == enclosing / "report"
+                                          or enclosing / "report" in out.parents):
+            raise OutputError(f"--out {args.out!r} is inside the result folder "
+                              f"{str(enclosing)!r}, which must hold only the files its "
+                              "manifest lists (a report there would make load, verify and "
+                              "diff refuse it); leave out --out (the page goes to "
+                              f"{str(Path(args.directory) / 'report')!r}) or choose a folder "
+                              "outside it")
+    return command_report(args)
+
+
 def _check_output_folder(out: Path) -> None:
     """Fail before any computation where the result folder `out` cannot be written."""
     import tempfile
@@ -130,6 +157,11 @@ def _check_output_folder(out: Path) -> None:
         raise FluxpartError(f"--out {str(out)!r} is a folder holding other files and no "
                             "manifest.json (not a fluxpart result folder, which is replaced "
                             "whole); choose another --out")
+    enclosing = _enclosing_result(out.parent)
+    if enclosing is not None:
+        raise FluxpartError(f"--out {str(out)!r} is inside the result folder "
+                            f"{str(enclosing)!r}, which must hold only the files its manifest "
+                            "lists; choose an --out outside it")
     ancestor = out.parent
     while not ancestor.exists():
         ancestor = ancestor.parent
@@ -277,7 +309,7 @@ def _parser() -> argparse.ArgumentParser:
     report.add_argument("directory", help="result folder written by run or demo")
     report.add_argument("--out", help="where to write the page (default: DIR/report/)")
     report.add_argument("--quiet", action="store_true", help="no progress output")
-    report.set_defaults(handler=_lazy("report", "command_report"))
+    report.set_defaults(handler=_command_report)
 
     batch = commands.add_parser(
         "batch", help="many sites on Dask",

@@ -1,0 +1,43 @@
+"""Robustness of the command line against user mistakes (fresh-eyes campaign).
+
+Contract (README "Command line"): a user error is one ``error:`` line naming the
+setting, and exit status 2, with nothing written.
+"""
+
+from fluxpart.cli import main
+
+
+def _result_folder(path):
+    """A folder that looks like a result folder to the CLI's output checks."""
+    path.mkdir()
+    (path / "manifest.json").write_text("{}")
+    return path
+
+
+def test_report_out_inside_result_folder_refused(tmp_path, capsys):
+    """report --out DIR/figs would add an unlisted folder, so load/verify/diff would refuse DIR."""
+    result = _result_folder(tmp_path / "out")
+    status = main(["report", str(result), "--out", str(result / "figs"), "--quiet"])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert status == 2
+    assert len(err) == 1 and err[0].startswith("error: --out")
+    assert not (result / "figs").exists()
+
+
+def test_report_out_into_another_result_folder_refused(tmp_path, capsys):
+    result = _result_folder(tmp_path / "a")
+    other = _result_folder(tmp_path / "b")
+    assert main(["report", str(result), "--out", str(other), "--quiet"]) == 2
+    assert "inside the result folder" in capsys.readouterr().err
+
+
+def test_run_out_inside_result_folder_refused(tmp_path, capsys):
+    """run --out DIR/sub is refused before any reading or computation."""
+    result = _result_folder(tmp_path / "out")
+    config = tmp_path / "site.toml"
+    config.write_text("[processing]\nseed = 0\n")
+    status = main(["run", str(config), "--out", str(result / "sub"), "--quiet"])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert status == 2
+    assert len(err) == 1 and err[0].startswith("error: --out")
+    assert sorted(p.name for p in result.iterdir()) == ["manifest.json"]
