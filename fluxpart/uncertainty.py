@@ -999,10 +999,15 @@ def _grouped_square(keys, groups, values) -> pd.Series:
     use = np.isfinite(values) & (groups >= 0) & (values != 0)
     if not use.any():
         return pd.Series(0.0, index=pd.Index(pd.unique(np.asarray(keys))))
-    frame = pd.DataFrame({"key": np.asarray(keys)[use], "group": groups[use],
-                          "value": values[use]})
-    inner = frame.groupby(["key", "group"], sort=False)["value"].sum()
-    return np.square(inner).groupby(level=0).sum()
+    # one integer code per (period, group) pair: the same sums, in the same record order,
+    # as grouping on the two columns, without building a two-level index
+    key_codes, key_values = pd.factorize(np.asarray(keys)[use], sort=False)
+    use_key = key_codes >= 0                      # a missing key is left out, as groupby does
+    group_codes, group_values = pd.factorize(groups[use][use_key], sort=False)
+    pair = key_codes[use_key].astype(np.int64) * len(group_values) + group_codes
+    inner = pd.Series(values[use][use_key]).groupby(pair, sort=False).sum()
+    outer = np.square(inner).groupby(inner.index.to_numpy() // len(group_values)).sum()
+    return pd.Series(outer.to_numpy(), index=key_values[outer.index.to_numpy()])
 
 
 def ustar_sigma(sums: pd.DataFrame, percentiles) -> pd.Series:
@@ -1294,9 +1299,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     gapfill_known = model is not None and not model[["bias", "independent_variance"]].isna().all().all()
     if gapfill_known:
         model = model.fillna(model.mean(numeric_only=True))   # a class without scores: the other's
-        klass = np.where(night, "night", "day")
-        pick = {name: model[name].reindex(klass).to_numpy(dtype=float)
-                for name in ("bias", "bias_se", "independent_variance", "correlated_variance")}
+        by_class = {name: model[name].reindex(["night", "day"]).to_numpy(dtype=float)
+                    for name in ("bias", "bias_se", "independent_variance", "correlated_variance")}
+        pick = {name: np.where(night, values[0], values[1]) for name, values in by_class.items()}
         gap_id = _run_ids(filled)
         independent = per_period(np.where(filled, pick["independent_variance"], 0.0))
         correlated = grouped(gap_id, np.where(filled, np.sqrt(pick["correlated_variance"]), 0.0))
