@@ -155,7 +155,8 @@ NOT_QUANTIFIED = (
 _NOT_COVERED = "not included: " + "; ".join(NOT_QUANTIFIED)
 _TOTAL_PARTS = {
     "nee": "random, gap filling and u* threshold",
-    "gpp_nighttime": "random, gap filling, u* threshold, fitted parameters and partitioning",
+    "gpp_nighttime": "random and gap filling of the records outside the night, u* threshold, "
+                     "fitted parameters and partitioning",
     "reco_nighttime": "u* threshold, fitted parameters (E0, Rref) and partitioning",
     "gpp_daytime": "u* threshold, fitted parameters (Rref of the windows) and partitioning",
     "reco_daytime": "u* threshold, fitted parameters (Rref of the windows) and partitioning",
@@ -185,9 +186,16 @@ UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
     "nee_uncertainty_gapfill_bias": (CARBON, "systematic gap-filling bias of the NEE sum "
                                      "(carbon) on artificial gaps (fill minus measured; not "
                                      "subtracted from nee, counted in nee_uncertainty_gapfill)"),
-    "gpp_nighttime_uncertainty_random": (CARBON, "1 sigma: random error of nighttime GPP = "
-                                         "random error of NEE (GPP = Reco - NEE), grams of "
-                                         "carbon"),
+    "gpp_nighttime_uncertainty_random": (CARBON, "1 sigma: random error of nighttime GPP "
+                                         "(GPP = Reco - NEE): random error of the NEE sum over "
+                                         "the measured records outside the night, grams of "
+                                         "carbon (at night Reco is fitted to the same records, "
+                                         "so their error cancels)"),
+    "gpp_nighttime_uncertainty_gapfill": (CARBON, "1 sigma: gap-filling part of nighttime GPP "
+                                          "(GPP = Reco - NEE): the NEE gap-filling error of "
+                                          "the filled records outside the night, grams of "
+                                          "carbon (night gaps are filled from the night "
+                                          "records Reco is fitted to)"),
     "gpp_uncertainty_partitioning": (CARBON, "1 sigma: structural error of GPP (carbon) "
                                      "estimated as |daytime - nighttime| / sqrt(2); in the "
                                      "totals of both methods"),

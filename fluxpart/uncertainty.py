@@ -1254,7 +1254,14 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       Reco: the same for the daytime windows' reference respiration. Daytime
       GPP: the same Reco error over the daylight records, because the fitted
       daytime NEE is held by the data, so an error of the respiration term is
-      an equal error of GPP. Nighttime GPP = Reco − NEE takes the parts of both.
+      an equal error of GPP. Nighttime GPP = Reco − NEE takes the parts of both,
+      but only over the records outside the night: at night the fitted Reco and
+      the measured or night-filled NEE are two estimates of the same respiration
+      from the same night records, so an error of the night data (its noise, the
+      Rref of a window, E0 with the night sums held) moves both alike and cancels
+      in their difference. What reaches nighttime GPP is Reco's error
+      extrapolated into daylight and the random and gap-filling errors of the
+      daytime NEE. Measured on 35 known-truth site-years (DEVELOPERS.md).
     - respiration temperature (structural, where both air and soil temperature
       exist): √w · |Σ(Reco(other temperature) − Reco)| of the nighttime method,
       w the weight the night data give the other temperature
@@ -1294,7 +1301,7 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     out["nee_uncertainty_random"] = np.sqrt(random_var)
 
     model = inputs.gapfill_model
-    gap_var = pd.Series(0.0, index=index)
+    gap_var = gap_var_day = pd.Series(0.0, index=index)
     bias = pd.Series(0.0, index=index)
     gapfill_known = model is not None and not model[["bias", "independent_variance"]].isna().all().all()
     if gapfill_known:
@@ -1302,14 +1309,24 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         by_class = {name: model[name].reindex(["night", "day"]).to_numpy(dtype=float)
                     for name in ("bias", "bias_se", "independent_variance", "correlated_variance")}
         pick = {name: np.where(night, values[0], values[1]) for name, values in by_class.items()}
+
+        def fill_variance(records):
+            independent = per_period(np.where(records, pick["independent_variance"], 0.0))
+            correlated = grouped(gap_id, np.where(records, np.sqrt(pick["correlated_variance"]),
+                                                  0.0))
+            bias = per_period(np.where(records, pick["bias"], 0.0)) * factor
+            bias_se = per_period(np.where(records, pick["bias_se"], 0.0)) * factor
+            # bias and its spread both count: S measures an error shared across gaps (Notes)
+            return (independent + correlated) * factor**2 + np.square(bias) \
+                + np.square(bias_se), bias
+
         gap_id = _run_ids(filled)
-        independent = per_period(np.where(filled, pick["independent_variance"], 0.0))
-        correlated = grouped(gap_id, np.where(filled, np.sqrt(pick["correlated_variance"]), 0.0))
-        bias = per_period(np.where(filled, pick["bias"], 0.0)) * factor
-        bias_se = per_period(np.where(filled, pick["bias_se"], 0.0)) * factor
-        # bias and its spread both count: S measures an error shared across gaps (see Notes)
-        gap_var = (independent + correlated) * factor**2 + np.square(bias) + np.square(bias_se)
+        gap_var, bias = fill_variance(filled)
+        gap_var_day = fill_variance(filled & ~night)[0]
     out["nee_uncertainty_gapfill"] = np.sqrt(gap_var) if gapfill_known else np.nan
+    out["gpp_nighttime_uncertainty_gapfill"] = np.sqrt(gap_var_day) if gapfill_known else np.nan
+    out["gpp_nighttime_uncertainty_random"] = np.sqrt(
+        per_period(np.square(np.where(night, 0.0, noise))) * factor**2)
     out["nee_uncertainty_gapfill_bias"] = bias if gapfill_known else np.nan
 
     run_sums = {name: (frame * factor).groupby(keys).sum(min_count=1).reindex(index)
@@ -1326,8 +1343,12 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     reco_night = fluxes["reco_nighttime"].to_numpy(dtype=float)
     reco_day = fluxes["reco_daytime"].to_numpy(dtype=float)
     daylight = fluxes["gpp_daytime"].to_numpy(dtype=float) > 0
-    e0_part = np.square(per_period(np.nan_to_num(inputs.e0_delta)) * factor)
+    e0_delta = np.nan_to_num(inputs.e0_delta)
+    e0_part = np.square(per_period(e0_delta) * factor)
+    e0_part_day = np.square(per_period(np.where(night, 0.0, e0_delta)) * factor)
     night_rref = grouped(inputs.night_window, np.asarray(inputs.night_relative_se) * reco_night)
+    night_rref_day = grouped(inputs.night_window, np.where(
+        night, 0.0, np.asarray(inputs.night_relative_se) * reco_night))
     day_rref = grouped(inputs.day_window, np.asarray(inputs.day_relative_se) * reco_day)
     day_rref_gpp = grouped(inputs.day_window, np.where(daylight, np.asarray(
         inputs.day_relative_se) * reco_day, 0.0))
@@ -1341,7 +1362,10 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         "gpp_daytime": np.sqrt(day_rref_gpp) * factor if day_known else
         pd.Series(np.nan, index=index),
     }
-    parameters["gpp_nighttime"] = parameters["reco_nighttime"]
+    # nighttime GPP = Reco - NEE: at night both are estimates of the same night respiration
+    # from the same night records, so only the part outside the night reaches it (Notes)
+    parameters["gpp_nighttime"] = np.sqrt(e0_part_day + night_rref_day * factor**2) \
+        if night_known else np.sqrt(e0_part_day)
     for flux, part in parameters.items():
         out[f"{flux}_uncertainty_parameters"] = part
 
@@ -1367,7 +1391,7 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         ustar["reco_nighttime"], parameters["reco_nighttime"], method["reco"], driver)
     out["gpp_nighttime_uncertainty_total"] = total(
         ustar["gpp_nighttime"], parameters["gpp_nighttime"], method["gpp"], driver,
-        out["nee_uncertainty_random"], out["nee_uncertainty_gapfill"])
+        out["gpp_nighttime_uncertainty_random"], out["gpp_nighttime_uncertainty_gapfill"])
     out["reco_daytime_uncertainty_total"] = total(
         ustar["reco_daytime"], parameters["reco_daytime"], method["reco"], driver)
     out["gpp_daytime_uncertainty_total"] = total(
@@ -1450,12 +1474,8 @@ def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame,
     fill_part = out["nee_uncertainty_gapfill"]
     out["nee_uncertainty_total"] = np.sqrt(np.square(pd.concat(
         [random_part, fill_part, out["nee_uncertainty_ustar"]], axis=1)).sum(axis=1, min_count=1))
-    if "gpp_nighttime_uncertainty_total" in parts.columns:
-        analytic = parts["nee_uncertainty_random"].fillna(0.0)
-        out["gpp_nighttime_uncertainty_total"] = np.sqrt(np.maximum(
-            np.square(parts["gpp_nighttime_uncertainty_total"]) - np.square(analytic)
-            + np.square(random_part.fillna(0.0)), 0.0))
-    out["gpp_nighttime_uncertainty_random"] = random_part
+    if "gpp_nighttime_uncertainty_random" not in parts.columns:
+        out["gpp_nighttime_uncertainty_random"] = random_part
     z = NormalDist().inv_cdf(0.5 + confidence / 2.0)
     for flux in _FLUXES:
         sigma = out[f"{flux}_uncertainty_total"]

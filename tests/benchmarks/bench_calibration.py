@@ -62,6 +62,9 @@ def run_one(seed: int) -> dict:
         row[f"{column}_width"] = high - low
     row["nee_gapfill_bias"] = float(annual.get("nee_uncertainty_gapfill_bias", np.nan))
     row["nee_sigma"] = float(annual["nee_uncertainty_total"])
+    for column in annual.index:   # every 1-sigma part, for studying how they combine
+        if "_uncertainty_" in column:
+            row[column] = float(annual[column])
     return row
 
 
