@@ -214,10 +214,12 @@ def test_too_little_night_data_fails_clearly_unless_a_fallback_is_chosen():
     keep = np.zeros(len(frame), dtype=bool)
     keep[np.flatnonzero(night & frame["nee"].notna().to_numpy())[:12]] = True
     blind = frame.assign(nee=frame["nee"].where(~night | keep))
-    config = Config(ustar_method="fixed")
+    # rref_min_points = 2: the few night records left are spread over several Rref windows
+    config = Config(ustar_method="fixed", rref_min_points=2)
     with pytest.raises(InsufficientDataError, match="e0_fallback"):
         process(blind, demo.site(), config)
-    result = process(blind, demo.site(), Config(ustar_method="fixed", e0_fallback=308.56))
+    result = process(blind, demo.site(), Config(ustar_method="fixed", e0_fallback=308.56,
+                                                rref_min_points=2))
     assert (result.parameters["nighttime_e0_annual"]["source"] == "fallback").all()
 
 

@@ -494,13 +494,17 @@ def fit_e0_windows(index, nee, temperature, is_night, *, e0_window_days=15.0,
 # --------------------------------------------------------------------------- #
 # Joint E0: one E0 per year with Rref free in every Rref window
 # --------------------------------------------------------------------------- #
-_JOINT_GRID_STEP = 1.0   # K, resolution of the profile search (refined by a parabola)
+_JOINT_GRID_STEP = 1.0     # K, resolution of the profile search (our choice)
+_JOINT_COARSE_STRIDE = 5   # the search first steps 5 K, then 1 K around the best (our choice)
+_JOINT_JACKKNIFE_REACH = 40.0   # K around the best coarse E0 searched at 1 K (our choice)
 
 
 def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
                  e0_min_points=6, e0_bounds=(30.0, 450.0),
                  e0_max_relative_error=0.5) -> pd.DataFrame:
     """One E0 per calendar year, fitted jointly with a free Rref in every short window.
+
+    The fit is the Laplace maximum likelihood (least absolute deviations).
 
     Parameters
     ----------
@@ -535,10 +539,16 @@ def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
     The windows are the E0 windows of :func:`fit_e0_windows` laid end to end
     (consecutive, not overlapping). The model is Lloyd & Taylor (1994) eq. 11
     with one E0 per year and one Rref per window,
-    ``NEE_i = Rref_w exp(E0 (1/(Tref - T0) - 1/(T_i - T0)))``. For a given E0
-    each Rref_w has the closed-form least-squares value ``Σ f·NEE / Σ f²``,
-    so the sum of squares is profiled over E0 on a 1 K grid within
-    `e0_bounds` and the minimum refined by a parabola through its neighbours.
+    ``NEE_i = Rref_w exp(E0 (1/(Tref - T0) - 1/(T_i - T0)))``, fitted by
+    maximum likelihood under Laplace (double-exponential) errors, i.e. least
+    absolute deviations: the random error of eddy-covariance fluxes is closer to
+    a Laplace than to a normal distribution (Hollinger & Richardson 2005;
+    Richardson et al. 2006), and Richardson & Hollinger (2005) fitted
+    respiration models to night NEE by this likelihood. For a given E0 each
+    Rref_w is the f-weighted median of ``NEE/f`` in its window, so the sum of
+    absolute deviations is profiled over E0 within `e0_bounds`, on a 5 K grid
+    and then 1 K around its minimum.
+
     Because every window has its own Rref, only the temperature variation
     *within* windows informs E0: the short-term sensitivity that Reichstein et
     al. (2005) sought with short windows, free of the seasonal co-variation of
@@ -547,12 +557,19 @@ def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
     by the information it holds (its temperature spread and record count), so
     no window needs a minimum temperature range, and it does not select the
     windows whose noise happens to flatten the curve: a flatter fit has a
-    smaller standard error, so that choice biases E0 low.
+    smaller standard error, so that choice biases E0 low. The median fit also
+    gives an occasional outlier or a night of u*-related loss that the filter
+    let through less weight than a least-squares fit would.
 
-    Standard error: ``sqrt(2 s² / SSR''(E0))`` with ``s² = SSR / (n - w - 1)``
-    for n records in w windows, the profile form of ``s² (JᵀJ)⁻¹`` (Bates &
-    Watts 1988). Night residuals are autocorrelated, so it understates the
-    uncertainty somewhat.
+    Standard error: the larger of the asymptotic one of the Laplace estimate,
+    ``b² (JᵀJ)⁻¹`` with ``b = Σ|residual| / (n - w - 1)`` for n records in w
+    windows (the E0 element of ``(JᵀJ)⁻¹`` from the Schur complement of the
+    windows' Rref block), and the delete-one-window jackknife (Efron & Stein
+    1981), which also holds the autocorrelation of night residuals within a
+    window and differences between windows that the asymptotic form ignores.
+    Leaving one window out only drops its column from the profile, so the
+    jackknife costs no refit; its values are searched within 40 K of the
+    estimate, at the grid's 1 K resolution.
 
     References
     ----------
@@ -560,8 +577,20 @@ def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
 
     Lloyd, J. & Taylor, J. A. (1994). Functional Ecology 8:315–323.
 
-    Bates, D. M. & Watts, D. G. (1988). Nonlinear Regression Analysis and Its
-    Applications. Wiley, New York (profile sum of squares) (m).
+    Richardson, A. D. & Hollinger, D. Y. (2005). Statistical modeling of ecosystem
+    respiration using eddy covariance data: maximum likelihood parameter
+    estimation, and Monte Carlo simulation of model and parameter uncertainty.
+    Agricultural and Forest Meteorology 131:191–208. (m)
+
+    Efron, B. & Stein, C. (1981). The jackknife estimate of variance. Annals of
+    Statistics 9:586–596. (m)
+
+    Hollinger, D. Y. & Richardson, A. D. (2005). Uncertainty in eddy covariance
+    measurements and its application to physiological models. Tree Physiology
+    25:873–885. (m)
+
+    Richardson, A. D. et al. (2006). Agricultural and Forest Meteorology
+    136:1–18. doi:10.1016/j.agrformet.2006.01.007
     """
     index = _check_index(index)
     length = len(index)
@@ -594,31 +623,72 @@ def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
     return frame.set_index("year")
 
 
+def _absolute_deviation_profile(flux, term, starts, grid):
+    """Least absolute deviations of every grid E0, each window's Rref at its optimum.
+
+    For a fixed E0 the model is ``flux = Rref_w f`` with ``f > 0``, and
+    ``Σ |flux - Rref f| = Σ f |flux/f - Rref|`` is smallest at the
+    f-weighted median of ``flux/f`` in each window. Returns the sum of
+    absolute deviations and the Rref per grid value and window.
+    """
+    sizes = np.diff(np.r_[starts, flux.size])
+    window = np.repeat(np.arange(starts.size), sizes)
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        shape = np.exp(grid[:, None] * term[None, :])
+        ratio = flux[None, :] / shape
+    # sort by window, then ratio (arctan maps the ratio monotonically into (0, 1))
+    key = window[None, :] + (0.5 + np.arctan(ratio) / np.pi) * 0.999
+    order = np.argsort(key, axis=1, kind="stable")
+    ratio_sorted = np.take_along_axis(ratio, order, axis=1)
+    weight_sorted = np.take_along_axis(shape, order, axis=1)
+    cumulative = np.cumsum(weight_sorted, axis=1)
+    before = np.concatenate([np.zeros((grid.size, 1)), cumulative[:, starts[1:] - 1]], axis=1)
+    within = cumulative - before[:, window]
+    total = np.add.reduceat(weight_sorted, starts, axis=1)
+    below_half = within < 0.5 * total[:, window]
+    position = starts[None, :] + np.add.reduceat(below_half, starts, axis=1)
+    rref = np.take_along_axis(ratio_sorted, np.minimum(position, flux.size - 1), axis=1)
+    deviation = np.add.reduceat(np.abs(flux[None, :] - rref[:, window] * shape), starts, axis=1)
+    return deviation, rref
+
+
 def _profile_e0(flux, term, starts, grid, max_relative):
-    """Profile least squares of E0 over `grid` (windows contiguous from `starts`)."""
+    """Laplace maximum-likelihood E0 over `grid` (windows contiguous from `starts`)."""
     windows, points = len(starts), len(flux)
     dof = points - windows - 1
     if windows == 0 or dof < 1:
         return np.nan, np.nan, windows, points, False, "too few night records"
-    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
-        shape = np.exp(grid[:, None] * term[None, :])
-        sum_ff = np.add.reduceat(shape * shape, starts, axis=1)
-        sum_fy = np.add.reduceat(shape * flux[None, :], starts, axis=1)
-        ssr = float(np.sum(flux * flux)) - np.sum(sum_fy * sum_fy / sum_ff, axis=1)
-    if not np.isfinite(ssr).all():
+    coarse = grid[::_JOINT_COARSE_STRIDE]
+    deviation, _ = _absolute_deviation_profile(flux, term, starts, coarse)
+    if not np.isfinite(deviation).all():
         return np.nan, np.nan, windows, points, False, "fit did not converge"
-    best = int(np.argmin(ssr))
-    if best == 0 or best == len(grid) - 1:
-        return (float(grid[best]), np.nan, windows, points, False,
+    centre = coarse[int(np.argmin(deviation.sum(axis=1)))]
+    fine = grid[np.abs(grid - centre) <= _JOINT_JACKKNIFE_REACH]
+    per_window, rref = _absolute_deviation_profile(flux, term, starts, fine)
+    deviation = per_window.sum(axis=1)
+    best = int(np.argmin(deviation))
+    e0 = float(fine[best])
+    if e0 <= grid[0] or e0 >= grid[-1]:
+        return (e0, np.nan, windows, points, False,
                 f"E0 at a bound of {grid[0]:g}-{grid[-1]:g} K")
-    left, centre, right = ssr[best - 1], ssr[best], ssr[best + 1]
-    step = grid[1] - grid[0]
-    curvature = (left - 2.0 * centre + right) / step ** 2
-    offset = 0.5 * step * (left - right) / (left - 2.0 * centre + right) if curvature > 0 else 0.0
-    e0 = float(grid[best] + offset)
-    minimum = centre - 0.25 * (left - right) * offset / step
-    variance = max(minimum, 0.0) / dof
-    e0_se = float(np.sqrt(2.0 * variance / curvature)) if curvature > 0 else np.nan
+    # delete-one-window jackknife: the profile is a sum over windows, so leaving
+    # window w out is the profile minus its column
+    left_out = fine[np.argmin(deviation[:, None] - per_window, axis=0)]
+    jackknife_se = float(np.sqrt((windows - 1) / windows
+                                 * np.sum((left_out - left_out.mean()) ** 2)))
+    # asymptotic covariance of the Laplace ML estimate: b² (JᵀJ)⁻¹, b = mean |residual|;
+    # the E0 element of (JᵀJ)⁻¹ by the Schur complement of the per-window Rref block
+    sizes = np.diff(np.r_[starts, points])
+    window = np.repeat(np.arange(windows), sizes)
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        shape = np.exp(e0 * term)
+        d_rref = shape
+        d_e0 = rref[best][window] * shape * term
+        schur = (np.sum(d_e0 * d_e0) - np.sum(np.add.reduceat(d_e0 * d_rref, starts) ** 2
+                                              / np.add.reduceat(d_rref * d_rref, starts)))
+        scale = deviation[best] / dof
+        asymptotic_se = float(scale * np.sqrt(1.0 / schur)) if schur > 0 else np.nan
+    e0_se = max(asymptotic_se, jackknife_se) if windows > 1 else asymptotic_se
     if not np.isfinite(e0_se):
         return e0, e0_se, windows, points, False, "standard error undefined"
     if e0_se / e0 > max_relative:
