@@ -67,12 +67,51 @@ def read_toml(path, what: str) -> dict:
     """
     path = Path(path)
     try:
-        text = path.read_text(encoding="utf-8")
+        data = path.read_bytes()
     except FileNotFoundError:
         raise InputFileError(f"{what} {str(path)!r} does not exist") from None
-    except (OSError, UnicodeDecodeError) as error:
-        raise InputFileError(f"{what} {str(path)!r} cannot be read: {error}") from None
+    except OSError as error:
+        raise InputFileError(f"{what} {str(path)!r} cannot be read: "
+                             f"{error.strerror or error}") from None
+    try:
+        # TOML is UTF-8; a byte-order mark (as some Windows editors write) is dropped
+        text = data.decode("utf-8-sig")
+    except UnicodeDecodeError as error:
+        line = data[:error.start].count(b"\n") + 1
+        raise InputFileError(f"{what} {str(path)!r} is not UTF-8 text (byte "
+                             f"0x{data[error.start]:02x} on line {line}); TOML files are "
+                             "UTF-8: save it as UTF-8 in your editor") from None
     try:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as error:
         raise ConfigError(f"{what} {str(path)!r} is not valid TOML: {error}") from None
+
+
+#: Leading bytes of file formats users give by mistake as a text table.
+_BINARY_SIGNATURES = (
+    (b"\x1f\x8b", "gzip-compressed", "decompress it (e.g. gunzip)"),
+    (b"PK\x03\x04", "a zip archive (an .xlsx or .ods workbook is one)",
+     "unpack it, or save the sheet as CSV"),
+    (b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1", "an old Excel (.xls) workbook", "save the sheet as CSV"),
+    (b"\x89HDF\r\n\x1a\n", "an HDF5 or NetCDF-4 file", "export it as CSV"),
+    (b"CDF\x01", "a NetCDF file", "export it as CSV"),
+    (b"CDF\x02", "a NetCDF file", "export it as CSV"),
+    (b"\xfd7zXZ\x00", "xz-compressed", "decompress it (e.g. unxz)"),
+)
+
+
+def refuse_binary(data: bytes, path) -> None:
+    """Raise InputFileError naming the format when `data` starts like a binary file.
+
+    Without this, a compressed file or a workbook fails on its first non-UTF-8 byte
+    with a hint to change ``[input] encoding``, which cannot help.
+    """
+    signatures = list(_BINARY_SIGNATURES)
+    if data.startswith(b"PAR1") and data.endswith(b"PAR1"):
+        signatures.append((b"PAR1", "a Parquet file", "export it as CSV"))
+    if data.startswith(b"BZh") and data[4:10] == b"1AY&SY":
+        signatures.append((b"BZh", "bzip2-compressed", "decompress it (e.g. bunzip2)"))
+    for signature, kind, fix in signatures:
+        if data.startswith(signature):
+            raise InputFileError(f"[input] path: {str(path)!r} is {kind}, not a text table; "
+                                 f"{fix} and point [input] path at the text file")

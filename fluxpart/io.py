@@ -39,7 +39,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from ._validate import read_toml
+from ._validate import read_toml, refuse_binary
 from .config import suggest_key
 from .errors import (
     ConfigError,
@@ -1079,6 +1079,7 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
         data = path.read_bytes()
     except OSError as error:
         raise InputFileError(f"input file {str(path)!r} cannot be read: {error}") from None
+    refuse_binary(data, path)
     if encoding is None:
         if data.startswith(codecs.BOM_UTF8):
             encoding = "utf-8-sig"

@@ -492,7 +492,7 @@ def _same_but_input_path(path: Path, copy: Path | None) -> bool:
     if copy is None:
         return False
     try:
-        documents = [tomllib.loads(p.read_text(encoding="utf-8")) for p in (path, copy)]
+        documents = [tomllib.loads(p.read_text(encoding="utf-8-sig")) for p in (path, copy)]
     except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
         return False
     for document in documents:

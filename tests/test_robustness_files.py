@@ -1,0 +1,71 @@
+"""Robustness of file reading against files as users hand them over (fresh-eyes campaign).
+
+Outside facts: the byte-order mark Windows editors put before UTF-8 text (Unicode
+U+FEFF, Python's ``codecs.BOM_UTF8``), and the files written by the standard
+library's ``gzip``, ``zipfile`` and ``bz2`` modules. Contract (README "Command
+line"): a user error is one ``error:`` line naming the file or setting, exit 2.
+"""
+
+import bz2
+import codecs
+import gzip
+import zipfile
+
+import pytest
+
+from fluxpart.cli import main
+from fluxpart.demo import write_example
+
+
+@pytest.fixture(scope="module")
+def example(tmp_path_factory):
+    return write_example(tmp_path_factory.mktemp("robust_files"))
+
+
+def _one_error(capsys):
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: "), err
+    return err[0]
+
+
+def test_site_config_with_byte_order_mark_is_read(example, tmp_path, capsys):
+    """A UTF-8 config saved with a BOM reads like the same config without one."""
+    text = example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', f'path = "{example.with_suffix(".csv")}"')
+    plain = tmp_path / "plain.toml"
+    plain.write_text(text, encoding="utf-8")
+    marked = tmp_path / "marked.toml"
+    marked.write_bytes(codecs.BOM_UTF8 + text.encode("utf-8"))
+    from fluxpart.io import read_site_config
+
+    assert read_site_config(marked).site == read_site_config(plain).site
+
+
+def test_site_config_not_utf8_names_file_and_line(example, tmp_path, capsys):
+    bad = tmp_path / "latin.toml"
+    bad.write_bytes("# air temperature in °C\n".encode("latin-1")
+                    + example.read_bytes())
+    assert main(["check", str(bad)]) == 2
+    line = _one_error(capsys)
+    assert "latin.toml" in line and "UTF-8" in line and "line 1" in line
+
+
+@pytest.mark.parametrize("kind", ["gzip", "zip", "bzip2"])
+def test_compressed_input_is_named_not_blamed_on_encoding(example, tmp_path, capsys, kind):
+    """A compressed input is named as such; changing [input] encoding could not help."""
+    data = example.with_suffix(".csv").read_bytes()
+    packed = tmp_path / f"tower.{kind}"
+    if kind == "gzip":
+        packed.write_bytes(gzip.compress(data))
+    elif kind == "bzip2":
+        packed.write_bytes(bz2.compress(data))
+    else:
+        with zipfile.ZipFile(packed, "w", compression=zipfile.ZIP_DEFLATED) as archive:
+            archive.writestr("tower.csv", data)
+    config = tmp_path / "site.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', f'path = "{packed.name}"'), encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "[input] path" in line and packed.name in line
+    assert "encoding" not in line
