@@ -406,7 +406,8 @@ _PARAMETERS = {
     "draws_valid": ("1", "bootstrap draws that gave a threshold"),
     "draw": ("1", "bootstrap draw number"),
     "windows_accepted": ("1", "E0 windows that passed every acceptance rule"),
-    "windows_used": ("1", "accepted E0 windows averaged into the year's E0"),
+    "windows_used": ("1", "windows in the year's E0: the 15-day windows of the joint fit "
+                          "(source joint) or the accepted windows averaged (source fitted)"),
     "windows_tried": ("1", "E0 windows fitted in the year"),
     "source": ("", "where the value came from"),
 }
