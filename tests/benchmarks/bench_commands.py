@@ -13,7 +13,9 @@ same factor for the reference and the commands.
 
 Commands: ``import fluxpart``; ``fluxpart run`` of one invented demo site-year
 (the Quillmoor example written by :func:`fluxpart.demo.write_example`) and of ten
-site-years in one file and one run; ``fluxpart report`` of the one-year result.
+site-years in one file and one run; ``fluxpart report`` of the one-year result; and the
+one-year run again with a bytecode cache (where ``PYTHONDONTWRITEBYTECODE`` is set, as on
+this project's machine, every other row recompiles fluxpart's modules at start-up).
 
 Targets (issue 17): ``run`` of one site-year <= 10 reference workloads (~0.8 s CPU on
 an idle 2-core machine); ten site-years <= 5x one; ``import fluxpart`` <= 0.5 s;
@@ -78,10 +80,11 @@ def time_reference() -> float:
     return min(times)
 
 
-def run_command(arguments: list[str]) -> tuple[float, float, float]:
+def run_command(arguments: list[str], env: dict | None = None) -> tuple[float, float, float]:
     """CPU [s], wall [s] and peak RSS [MB] of one child process (checked to succeed)."""
     wall = time.perf_counter()
-    child = subprocess.Popen(arguments, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    child = subprocess.Popen(arguments, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE,
+                             env=env)
     _, status, usage = os.wait4(child.pid, 0)
     wall = time.perf_counter() - wall
     child.returncode = os.waitstatus_to_exitcode(status)
@@ -143,6 +146,17 @@ def main() -> None:
                                       str(scratch / "out1"), "--out",
                                       str(scratch / "page"), "--quiet"],
         }
+        # With PYTHONDONTWRITEBYTECODE set (as on this project's machine) every start
+        # compiles fluxpart's own modules again (~0.3 s); an installed package has them
+        # compiled. This row runs with a bytecode cache in the scratch folder, filled by
+        # one warm-up run, to show the difference.
+        cached = {key: value for key, value in os.environ.items()
+                  if key != "PYTHONDONTWRITEBYTECODE"}
+        cached["PYTHONPYCACHEPREFIX"] = str(scratch / "bytecode")
+        commands["run, one year, bytecode cached"] = commands["run, one site-year"]
+        environments = {"run, one year, bytecode cached": cached}
+        run_command(commands["run, one site-year"][:-3] + ["--out", str(scratch / "warm"),
+                                                           "--quiet"], env=cached)
         reference = [time_reference()]
         figures = {}
         for label, arguments in commands.items():
@@ -150,7 +164,7 @@ def main() -> None:
             for _ in range(repeats):
                 if "--out" in arguments:       # each run starts from no output folder
                     shutil.rmtree(arguments[arguments.index("--out") + 1], ignore_errors=True)
-                runs.append(run_command(arguments))
+                runs.append(run_command(arguments, env=environments.get(label)))
             figures[label] = min(runs)
             reference.append(time_reference())
     unit = statistics.median(reference)
@@ -158,10 +172,11 @@ def main() -> None:
     print(f"reference workload: {unit:.3f} s CPU (median of {len(reference)} timings, "
           f"range {min(reference):.3f}-{max(reference):.3f}); load average {load:.1f}")
     floor = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
-    print(f"peak MB of a child includes this script's own {floor:.0f} MB (its floor)")
-    print(f"{'command':24s} {'CPU s':>7s} {'wall s':>7s} {'x ref':>7s} {'peak MB':>8s}")
+    print(f"peak MB of a child includes this script's own {floor:.0f} MB (its floor); "
+          f"PYTHONDONTWRITEBYTECODE={os.environ.get('PYTHONDONTWRITEBYTECODE', '')!r}")
+    print(f"{'command':31s} {'CPU s':>7s} {'wall s':>7s} {'x ref':>7s} {'peak MB':>8s}")
     for label, (cpu, wall, rss) in figures.items():
-        print(f"{label:24s} {cpu:7.2f} {wall:7.2f} {cpu / unit:7.1f} {rss:8.0f}")
+        print(f"{label:31s} {cpu:7.2f} {wall:7.2f} {cpu / unit:7.1f} {rss:8.0f}")
     one = figures["run, one site-year"][0]
     print(f"ten site-years / one site-year (CPU): {figures['run, ten site-years'][0] / one:.1f}x")
 
