@@ -659,8 +659,9 @@ def _profile_e0(y, x, w, points, bounds):
     w2y = w2 * y
     yy = (w2y * y).sum(axis=1)
 
-    def profile(e0):
-        f = np.exp(e0[:, None] * x)
+    def profile(e0, f=None):
+        if f is None:
+            f = np.exp(e0[:, None] * x)
         sf = (w2y * f).sum(axis=1)
         ff = (w2 * f * f).sum(axis=1)
         with np.errstate(divide="ignore", invalid="ignore"):
@@ -668,7 +669,17 @@ def _profile_e0(y, x, w, points, bounds):
 
     grid = np.arange(bounds[0], bounds[1] + _E0_GRID_STEP / 2, _E0_GRID_STEP)
     grid[-1] = bounds[1]
-    costs = np.stack([profile(np.full(len(y), value))[0] for value in grid], axis=1)
+    # exp(E0 x) along the regular grid by repeated multiplication with exp(step x)
+    # (a relative drift of ~1e-14 over the grid, which only chooses the bracket)
+    f = np.exp(grid[0] * x)
+    costs = [profile(None, f)[0]]
+    if len(grid) > 1:
+        growth = np.exp((grid[1] - grid[0]) * x)
+        for _ in grid[1:-1]:
+            f = f * growth
+            costs.append(profile(None, f)[0])
+        costs.append(profile(None, np.exp(grid[-1] * x))[0])      # the last may be shorter
+    costs = np.stack(costs, axis=1)
     costs = np.where(np.isfinite(costs), costs, np.inf)
     best = np.argmin(costs, axis=1)
     low = grid[np.maximum(best - 1, 0)]
