@@ -138,6 +138,7 @@ STATUSES = ("accepted", "replaced", "rejected")
 
 _ALPHA, _BETA0, _K, _RREF = range(4)
 _MODEL_INPUTS = ("nee", "rg", "vpd", "factor", "weight")
+_JACOBIAN_INPUTS = ("light", "excess", "weight", "factor_weight")
 _ALPHA_START = 0.01          # µmol J-1, Lasslop et al. (2010) (m)
 _RREF_FLOOR_START = 0.1      # µmol m-2 s-1, keeps the start off the bound (our choice)
 _LAMBDA_START = 1e-3         # Marquardt damping, usual starting value (common practice)
@@ -838,8 +839,11 @@ def _levenberg_marquardt(theta, fixed, lower, upper, windows, mask, vpd0, max_it
         live &= ~finished
         if not live.any():
             break
-        if better.any():
-            moved = _take_rows({**data, **trial_parts}, better)
+        if better.all():
+            gradient, normal = _normal_equations(data, trial_parts)
+        elif better.any():
+            moved = _take_rows({name: data[name] for name in _JACOBIAN_INPUTS}
+                               | trial_parts, better)
             gradient[better], normal[better] = _normal_equations(moved, moved)
         if live.sum() < 0.75 * len(live):
             # converged windows leave the arrays once a quarter of them has finished
@@ -925,22 +929,24 @@ def _marquardt_step(theta, fixed, lower, upper, gradient, normal, cost, points, 
     Returns the trial point and whether the remaining Gauss–Newton step is negligible
     (the window has converged).
     """
-    identity = np.eye(4)
+    count = len(theta)
     diagonal = np.diagonal(normal, axis1=1, axis2=2)
     hold = (fixed | ((theta <= lower) & (gradient > 0)) | ((theta >= upper) & (gradient < 0))
             | (diagonal <= 0))
     keep = ~hold
-    pair = keep[:, :, None] & keep[:, None, :]
-    descent = np.where(keep, -gradient, 0.0)[:, :, None]
-    scaling = diagonal[:, :, None] * identity
-    held = hold[:, :, None] * identity
-    # the undamped (Gauss–Newton) and the damped system, solved in one call
-    factor = np.concatenate([np.full(len(theta), 1e-12), damping])[:, None, None]
-    systems = np.where(np.concatenate([pair, pair]), np.concatenate([normal, normal])
-                       + factor * np.concatenate([scaling, scaling]), 0.0) \
-        + np.concatenate([held, held])
-    steps = np.linalg.solve(systems, np.concatenate([descent, descent]))[:, :, 0]
-    newton_step, step = steps[:len(theta)], steps[len(theta):]
+    descent = np.where(keep, -gradient, 0.0)
+    # the undamped (Gauss–Newton) and the damped system, solved in one call: held
+    # parameters get a unit row and column, the others diag(J^T J) times the damping
+    systems = np.empty((2, count, 4, 4))
+    systems[:] = np.where(keep[:, :, None] & keep[:, None, :], normal, 0.0)
+    slots = np.arange(4)
+    systems[0, :, slots, slots] = np.where(keep, normal[:, slots, slots] + 1e-12 * diagonal,
+                                           1.0).T
+    systems[1, :, slots, slots] = np.where(keep, normal[:, slots, slots]
+                                           + damping[:, None] * diagonal, 1.0).T
+    steps = np.linalg.solve(systems.reshape(2 * count, 4, 4),
+                            np.concatenate([descent, descent])[:, :, None])[:, :, 0]
+    newton_step, step = steps[:count], steps[count:]
     predicted = (newton_step * (-gradient * keep)).sum(axis=1)
     variance = 2.0 * cost / np.maximum(points - keep.sum(axis=1), 1)
     negligible = predicted <= (_SE_TOL**2) * variance
