@@ -93,6 +93,9 @@ def _to_arrow(frame: pd.DataFrame, units: dict[str, tuple[str, str]], name: str,
         flat = frame.reset_index(drop=True)
     else:
         flat = frame.reset_index(names=index_name)
+    # the frame's attrs go into the file metadata below; left on the copy, pandas would
+    # deep-copy them for every column Arrow takes out of it
+    flat.attrs = {}
     table = pa.Table.from_pandas(flat, preserve_index=False)
     fields, columns = [], {}
     for field in table.schema:

@@ -864,11 +864,16 @@ def _packed_fit_data(windows, mask, rows, vpd0) -> dict:
     mask = mask[rows]
     points = mask.sum(axis=1)
     width = max(1, int(points.max()))
-    order = np.argsort(~mask, axis=1, kind="stable")[:, :width]
-    picked = np.take_along_axis(mask, order, axis=1)
+    row, column = np.nonzero(mask)                  # row by row, in time order
+    slot = np.arange(len(row)) - (np.cumsum(points) - points)[row]
+    picked = np.zeros((len(rows), width), dtype=bool)
+    picked[row, slot] = True
+    source_row = rows[row]
 
     def pack(values):
-        return np.where(picked, np.take_along_axis(values[rows], order, axis=1), 0.0)
+        packed = np.zeros((len(rows), width))
+        packed[row, slot] = values[source_row, column]
+        return packed
 
     light = np.clip(pack(windows["rg"]), 0.0, None)
     vpd_excess = pack(windows["vpd"]) - vpd0
