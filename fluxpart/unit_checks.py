@@ -50,6 +50,15 @@ IMPLAUSIBLE_SHARE = 0.05
 MIN_DAYS_FOR_UNIT_CHECKS = 7
 
 _IMPLAUSIBLE_MIN_COUNT = 5
+# NEE sign check (our choice): the release tail of warm, bright records must reach more
+# than this many times as far as the uptake tail (95th vs 5th percentile; vegetated
+# sites show 0.0-0.4, reversed files 2.8 and more on the generated sites of
+# fluxpart.scenarios) ...
+_SIGN_TAIL_RATIO = 2.0
+# ... and beyond this release [µmol m-2 s-1] before the reader refuses: above what
+# dormant or dry ecosystems release in warm daylight (a few µmol m-2 s-1, common
+# practice); below it the check only warns.
+_SIGN_MIN_RELEASE = 3.0
 # Records in "warm and bright" conditions a mix-up check needs (our choice: half a
 # day of half-hours, so that one odd afternoon cannot decide).
 _MIN_ACTIVE_RECORDS = 24
@@ -228,6 +237,55 @@ def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: 
                   "= \"mg CO2 m-2 s-1\"")
 
 
+def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, potential=None):
+    """NEE with the opposite sign (uptake positive, e.g. NEP mapped as ``nee``).
+
+    Two facts of the trade decide it together: at night there is no photosynthesis,
+    so NEE is ecosystem respiration, a release (> 0); and by day under strong light
+    photosynthesis draws NEE down, so among warm, bright records the uptake tail
+    (negative NEE) reaches further from zero than the release tail. A record whose
+    night median is negative *and* whose warm, bright records reach more than
+    :data:`_SIGN_TAIL_RATIO` times further into release than into uptake (95th vs
+    5th percentile), by more than :data:`_SIGN_MIN_RELEASE`, has both backwards.
+    Either alone happens on real towers (cold open-path nights or a desert can show
+    small negative night medians; a dormant season shows daytime release), so one
+    alone never refuses. Returns (refusal, warning); both None when it cannot tell
+    or finds nothing.
+    """
+    nee = converted.get("nee")
+    if nee is None:
+        return None, None
+    if potential is not None:
+        night = np.asarray(potential) <= 0.0
+    elif converted.get("rg") is not None:
+        night = converted["rg"] < 10.0
+    else:
+        return None, None
+    active = _active(converted, 5.0)
+    if active is None:
+        return None, None
+    finite = np.isfinite(nee)
+    night_values, active_values = nee[night & finite], nee[active & finite]
+    if night_values.size < 48 or active_values.size < _MIN_ACTIVE_RECORDS:
+        return None, None
+    night_median = float(np.median(night_values))
+    low, high = (float(v) for v in np.percentile(active_values, [5, 95]))
+    reversed_tails = high > 0.0 and (low >= 0.0 or high > _SIGN_TAIL_RATIO * -low)
+    if not (night_median < 0.0 and reversed_tails):
+        return None, None
+    found = (f"night values have a median of {night_median:.3g} µmol m-2 s-1 (respiration, "
+             "a release, is positive) and warm, bright records have 95th and 5th percentiles "
+             f"of {high:.3g} and {low:.3g}, a release tail longer than the uptake tail, the "
+             "reverse of photosynthesis")
+    if high > _SIGN_MIN_RELEASE and _enough_days(int(finite.sum()), interval_minutes):
+        return (f"column {columns['nee']!r} (nee): {found}: the column looks like NEE with the "
+                "opposite sign (uptake positive, as NEP): map a column with NEE positive = "
+                "release to the atmosphere, or negate the values in a copy of the file (or "
+                "list nee in [input] accept_units to keep them as they are)"), None
+    return None, (f"nee: {found}; if the column has uptake positive (NEP), it needs the "
+                  "opposite sign")
+
+
 def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes: int):
     """VPD off by a factor 10 (kPa read as hPa, or hPa read as kPa)."""
     vpd, tair = converted.get("vpd"), converted.get("tair")
@@ -360,6 +418,12 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
             refusals["nee"] = refuse
         if warn:
             warnings.append(warn)
+        if "nee" not in refusals:
+            refuse, warn = _nee_sign_message(converted, columns, interval_minutes, potential)
+            if refuse:
+                refusals["nee"] = refuse
+            if warn:
+                warnings.append(warn)
         refuse, warn = _vpd_messages(converted, units, columns, interval_minutes)
         if refuse:
             refusals["vpd"] = refuse
