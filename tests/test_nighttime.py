@@ -1,7 +1,8 @@
 """Tests of fluxpart.partition.nighttime (Reichstein et al. 2005; Lloyd & Taylor 1994).
 
 External checks: SciPy's ``curve_fit`` and statsmodels' ``OLS`` fitting the same
-model to the same points. Known-truth recovery tests use invented data (planted
+model to the same points; SciPy's ``linprog`` (HiGHS) solving the least absolute
+deviation fit of the joint E0 as a linear programme. Known-truth recovery tests use invented data (planted
 E0 and Rref plus noise), the only place invented data is used here.
 """
 
@@ -558,3 +559,11 @@ def test_bad_settings_raise_config_error(rng, setting, value):
     with pytest.raises(ConfigError, match=setting):
         partition_nighttime(index, nee, filled, temperature, temperature, night,
                             **{setting: value})
+
+
+def test_config_e0_method_choices():
+    """Config accepts the two E0 estimates and names the setting for anything else."""
+    assert Config().e0_method == "joint"
+    assert Config(e0_method="best_windows").e0_method == "best_windows"
+    with pytest.raises(ConfigError, match=r"\[processing\] e0_method"):
+        Config(e0_method="median")
