@@ -106,7 +106,10 @@ PPFD_PER_RG = 0.46 * 4.57
 
 # unit spelling -> (scale, offset) such that canonical = value * scale + offset
 _TEMPERATURE = {"°C": (1.0, 0.0), "degC": (1.0, 0.0), "C": (1.0, 0.0),
-                "K": (1.0, -KELVIN_OFFSET), "kelvin": (1.0, -KELVIN_OFFSET)}
+                "K": (1.0, -KELVIN_OFFSET), "kelvin": (1.0, -KELVIN_OFFSET),
+                # degrees Fahrenheit: °C = (°F - 32) x 5/9 (NIST SP 811, appendix B (m))
+                "°F": (5.0 / 9.0, -32.0 * 5.0 / 9.0), "degF": (5.0 / 9.0, -32.0 * 5.0 / 9.0),
+                "F": (5.0 / 9.0, -32.0 * 5.0 / 9.0)}
 _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
     "nee": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),
             "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0)},

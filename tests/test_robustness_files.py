@@ -69,3 +69,19 @@ def test_compressed_input_is_named_not_blamed_on_encoding(example, tmp_path, cap
     line = _one_error(capsys)
     assert "[input] path" in line and packed.name in line
     assert "encoding" not in line
+
+
+def test_fahrenheit_unit_and_hint():
+    """°F: 212 °F = 100 °C, 32 °F = 0 °C, -40 °F = -40 °C (definition of the scale; NIST
+    SP 811 (m)); a file in °F read as °C is refused with the °F unit named."""
+    import numpy as np
+
+    from fluxpart.unit_checks import implausible_message
+    from fluxpart.variables import to_canonical
+
+    assert np.allclose(to_canonical([212.0, 32.0, -40.0], "tair", "degF"), [100.0, 0.0, -40.0])
+    # a mid-latitude year of air temperature, -5..30 °C, written in °F
+    celsius = 12.5 + 17.5 * np.sin(np.linspace(0, 2 * np.pi, 17520))
+    fahrenheit = celsius * 9 / 5 + 32
+    message = implausible_message("tair", fahrenheit, fahrenheit, None, "air_temp", (-9999,))
+    assert message is not None and "tair = \"°F\"" in message
