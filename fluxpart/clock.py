@@ -170,16 +170,23 @@ def shift_threshold_minutes(interval_minutes: float) -> float:
     return max(20.0, 2.0 * float(interval_minutes) / 3.0)
 
 
-def _day_slot_matrix(index: pd.DatetimeIndex, values: np.ndarray, interval_minutes: float):
-    """Values as a (day x time-of-day slot) matrix, NaN where absent; and the days."""
+def _day_slot_layout(index: pd.DatetimeIndex, interval_minutes: float):
+    """Row (day) and column (time-of-day slot) of each record in a day x slot matrix."""
     slots = int(round(1440.0 / interval_minutes))
     midnight = index.normalize()
     minute_of_day = ((index - midnight) / pd.Timedelta(minutes=1)).to_numpy()
     slot = np.clip(np.floor(minute_of_day / interval_minutes).astype(int), 0, slots - 1)
-    first = midnight[0]
-    day = ((midnight - first) / pd.Timedelta(days=1)).to_numpy().astype(int)
+    day = ((midnight - midnight[0]) / pd.Timedelta(days=1)).to_numpy().astype(int)
+    return day, slot
+
+
+def _day_slot_matrix(index: pd.DatetimeIndex, values: np.ndarray, interval_minutes: float):
+    """Values as a (day x time-of-day slot) matrix, NaN where absent; and the days."""
+    slots = int(round(1440.0 / interval_minutes))
+    day, slot = _day_slot_layout(index, interval_minutes)
     matrix = np.full((day[-1] + 1, slots), np.nan)
     matrix[day, slot] = values
+    first = index[0].normalize()
     days = pd.DatetimeIndex(first + pd.to_timedelta(np.arange(day[-1] + 1), unit="D"))
     return matrix, days
 
@@ -258,20 +265,28 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
     slots = int(round(1440.0 / interval))
     position = (latitude, longitude, utc_offset)
     rg_matrix, days = _day_slot_matrix(index, rg, interval)
+    layout = _day_slot_layout(index, interval)
+
+    def as_matrix(values):
+        """The same as ``_day_slot_matrix(index, values, interval)[0]``, reusing the layout."""
+        matrix = np.full(rg_matrix.shape, np.nan)
+        matrix[layout] = values
+        return matrix
+
     potential = potential_radiation(index, *position, interval)
-    potential_matrix, _ = _day_slot_matrix(index, potential, interval)
+    potential_matrix = as_matrix(potential)
     present = np.isfinite(rg_matrix)
     good_day = present.sum(axis=1) >= 0.8 * slots
     months = days.to_period("M")
 
     step = interval / 6.0
     fine_lags = np.arange(-6, 7) * step             # sub-record lags [min]
-    fine = {lag: _day_slot_matrix(index, potential_radiation(
-        index - pd.Timedelta(minutes=float(lag)), *position, interval), interval)[0]
+    fine = {lag: as_matrix(potential_radiation(
+        index - pd.Timedelta(minutes=float(lag)), *position, interval))
         for lag in fine_lags if lag != 0.0}
     fine[0.0] = potential_matrix
-    flipped_matrix, _ = _day_slot_matrix(index, potential_radiation(
-        index, -latitude, longitude, utc_offset, interval), interval)
+    flipped_matrix = as_matrix(potential_radiation(
+        index, -latitude, longitude, utc_offset, interval))
 
     rows = []
     for month in months.unique():
