@@ -342,7 +342,9 @@ def _ustar_thresholds(frame, screened, is_night, site, config):
                        else config.ustar_min_threshold),
         temperature_classes=config.ustar_temperature_classes,
         ustar_classes=config.ustar_classes, plateau_share=config.ustar_plateau_share,
-        correlation_limit=config.ustar_correlation_limit)
+        correlation_limit=config.ustar_correlation_limit,
+        min_resolution=config.ustar_min_resolution, annual=config.ustar_annual,
+        plateau_reference=config.ustar_plateau_reference)
     annual = found.annual.set_index("year").reindex(years)
     detected = annual["threshold"].astype(float)
     central = detected.fillna(config.ustar_threshold).rename("threshold")

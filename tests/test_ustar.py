@@ -373,7 +373,7 @@ def test_unresolved_classes_merge_and_the_published_rule_stays_available():
     Extra Laplace noise (scale 1.5 µmol m-2 s-1) makes the cold season's classes too
     noisy for the test. With ``min_resolution = 0`` and ``annual = "maximum"`` the
     result is the published one (Papale et al. 2006 (m)): six classes everywhere and
-    the year's threshold the largest seasonal one.
+    the year's threshold the largest seasonal one (also with ``plateau_reference = 1``).
     """
     index, nee, friction, tair, is_night = _night_record(30)
     noisy = nee + np.random.default_rng(130).laplace(0.0, 1.5, len(nee))
@@ -387,7 +387,7 @@ def test_unresolved_classes_merge_and_the_published_rule_stays_available():
     assert result.annual["threshold_detected"].iloc[0] == np.median(used)
     assert abs(result.annual["threshold"].iloc[0] - PLANTED) <= TOLERANCE
 
-    published = _run(record, draws=0, min_resolution=0, annual="maximum")
+    published = _run(record, draws=0, min_resolution=0, annual="maximum", plateau_reference=1.0)
     assert (published.strata["temperature_classes"] == 6).all()
     assert (published.annual["threshold_detected"].iloc[0]
             == published.seasonal["threshold_detected"].max())
@@ -414,3 +414,29 @@ def test_generated_fen_and_woodland_thresholds_within_20_percent(seed):
     found = float(table.loc[table["period"] == "year", "threshold_detected"].iloc[0])
     planted = year.scenario.parameters["ustar_threshold"]
     assert abs(found / planted - 1.0) <= 0.2
+
+
+def test_plateau_reference_is_the_top_share_of_the_ustar_classes():
+    """A class is compared with the top quarter of the u* classes, or all above (published).
+
+    Noise-free class means (3 records each): classes 0-9 lose half the flux, class 10
+    is at 0.97, classes 11-14 at 0.9 and 15-19 at the plateau 1.0. Against every class
+    above (published, Reichstein et al. 2005 (m)) class 10 reaches 99 % of their mean
+    (0.956); against the top quarter (classes 15-19, mean 1.0) it does not, and the
+    first class to reach it is class 15.
+    """
+    level = np.repeat(np.r_[np.full(10, 0.5), 0.97, np.full(4, 0.9), np.full(5, 1.0)], 3)
+    friction = np.repeat(0.05 * np.arange(1, 21), 3) + np.tile([0.0, 0.001, 0.002], 20)
+    tair = 10.0 + np.tile([-0.1, 0.0, 0.1], 20)                  # r(u*, T) = 0
+    index = pd.date_range("2021-07-01", periods=level.size, freq="30min")
+    seasons = assign_seasons(index, 48.0)
+    night = np.ones(level.size, dtype=bool)
+    settings = dict(temperature_classes=1, min_resolution=0, min_threshold=0.0)
+    published = moving_point_threshold(level, friction, tair, night, seasons,
+                                       plateau_reference=1.0, **settings)
+    quarter = moving_point_threshold(level, friction, tair, night, seasons,
+                                     plateau_reference=0.25, **settings)
+    assert np.isclose(published.annual["threshold"].iloc[0], 0.05 * 11 + 0.001)
+    assert np.isclose(quarter.annual["threshold"].iloc[0], 0.05 * 16 + 0.001)
+    with pytest.raises(ConfigError, match="plateau_reference"):
+        moving_point_threshold(level, friction, tair, night, seasons, plateau_reference=0.0)
