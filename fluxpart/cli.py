@@ -356,6 +356,12 @@ def main(argv=None) -> int:
     except FluxpartError as error:
         print(f"error: {error}", file=sys.stderr)
         return 2
+    except KeyboardInterrupt:
+        # a result folder is written whole or not at all (fluxpart.resultdir), so an
+        # interrupt leaves it as it was, or complete if it came after the swap
+        print("error: interrupted (Ctrl-C); an output folder holds its earlier content or "
+              "a complete new result, never a mix", file=sys.stderr)
+        return 130
     except BrokenPipeError:          # output piped into e.g. `head`, which closed early
         sys.stderr.close()
         return 0

@@ -41,3 +41,17 @@ def test_run_out_inside_result_folder_refused(tmp_path, capsys):
     assert status == 2
     assert len(err) == 1 and err[0].startswith("error: --out")
     assert sorted(p.name for p in result.iterdir()) == ["manifest.json"]
+
+
+def test_ctrl_c_is_one_line_not_a_traceback(tmp_path, capsys, monkeypatch):
+    """Ctrl-C (KeyboardInterrupt) exits 130 (128 + SIGINT, the shell convention) with one line."""
+    import fluxpart.cli as cli
+
+    def interrupted(args):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(cli, "_command_run", interrupted)
+    status = main(["run", str(tmp_path / "site.toml"), "--quiet"])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert status == 130
+    assert len(err) == 1 and err[0].startswith("error: interrupted")
