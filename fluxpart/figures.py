@@ -157,7 +157,99 @@ def _matplotlib():
         raise FluxpartError(
             "the report needs matplotlib, which is not installed; install the report extra "
             'with: pip install "fluxpart[report]"') from None
-    return matplotlib, colors, dates, ticker, FigureCanvasAgg, MplFigure
+    return matplotlib, colors, dates, ticker, _text_cache_canvas(FigureCanvasAgg), MplFigure
+
+
+#: Rendered texts and text extents shared by every figure: string, font files, size,
+#: dpi, hinting and antialiasing -> bitmap and offsets, or -> (width, height, descent).
+_TEXT_BITMAPS: dict = {}
+_TEXT_EXTENTS: dict = {}
+_TEXT_CACHE_LIMIT = 4096
+_CACHED_CANVAS = []
+
+
+def _text_cache_canvas(canvas_class):
+    """An Agg canvas whose renderer draws every text as one bitmap, cached across figures.
+
+    matplotlib 3.11 shapes and renders a text glyph by glyph at every draw, about
+    3 ms a text on the project's machine: most of a figure's drawing time, and a
+    report draws about 420 texts of which about 180 differ. This renderer renders a
+    string once per font, size, dpi and hinting into one bitmap (FreeType through
+    ``FT2Font.set_text`` and ``draw_glyphs_to_bitmap``, the way matplotlib drew text
+    up to 3.10) and places it at whole pixels, so the bytes do not depend on what was
+    drawn before. Math text and texts with font features or a language are drawn
+    the usual way; without the FreeType calls this needs, the plain canvas is used.
+    """
+    if _CACHED_CANVAS:
+        return _CACHED_CANVAS[0]
+    import math
+
+    from matplotlib import font_manager
+    from matplotlib.backends import backend_agg
+
+    needed = (hasattr(backend_agg.RendererAgg, "_prepare_font")
+              and hasattr(backend_agg, "get_hinting_flag")
+              and hasattr(font_manager.fontManager, "_find_fonts_by_props")
+              and all(hasattr(font_manager.ft2font.FT2Font, name) for name in
+                      ("set_text", "draw_glyphs_to_bitmap", "get_image", "get_bitmap_offset")))
+    if not needed:
+        _CACHED_CANVAS.append(canvas_class)
+        return canvas_class
+
+    def text_key(renderer, text, prop, antialiased=True):
+        fonts = font_manager.fontManager._find_fonts_by_props(prop)
+        return (text, tuple(str(f) for f in fonts), prop.get_size_in_points(), renderer.dpi,
+                backend_agg.get_hinting_flag(), bool(antialiased))
+
+    def remember(cache, key, value):
+        if len(cache) >= _TEXT_CACHE_LIMIT:
+            cache.clear()
+        cache[key] = value
+        return value
+
+    class CachedTextRenderer(backend_agg.RendererAgg):
+        def get_text_width_height_descent(self, s, prop, ismath):
+            if ismath:
+                return super().get_text_width_height_descent(s, prop, ismath)
+            key = text_key(self, s, prop)
+            extent = _TEXT_EXTENTS.get(key)
+            if extent is None:
+                extent = remember(_TEXT_EXTENTS, key,
+                                  super().get_text_width_height_descent(s, prop, ismath))
+            return extent
+
+        def draw_text(self, gc, x, y, s, prop, angle, ismath=False, mtext=None):
+            if ismath or (mtext is not None and (
+                    getattr(mtext, "get_fontfeatures", lambda: None)()
+                    or getattr(mtext, "get_language", lambda: None)())):
+                return super().draw_text(gc, x, y, s, prop, angle, ismath, mtext)
+            key = text_key(self, s, prop, gc.get_antialiased())
+            entry = _TEXT_BITMAPS.get(key)
+            if entry is None:
+                font = self._prepare_font(prop)
+                font.set_text(s, 0, flags=backend_agg.get_hinting_flag())
+                font.draw_glyphs_to_bitmap(antialiased=gc.get_antialiased())
+                left, top = font.get_bitmap_offset()
+                entry = remember(_TEXT_BITMAPS, key, (
+                    np.array(font.get_image(), dtype=np.uint8), font.get_descent() / 64.0,
+                    left / 64.0, top / 64.0))
+            image, descent, left, top = entry
+            x = round(x + left + descent * math.sin(math.radians(angle)))
+            y = round(y + top + descent * math.cos(math.radians(angle)))
+            self._renderer.draw_text_image(image, x, y + 1, angle, gc)
+            return None
+
+    class CachedTextCanvas(canvas_class):
+        def get_renderer(self):
+            width, height = self.get_width_height(physical=True)
+            key = width, height, self.figure.dpi
+            if self._lastKey != key:
+                self.renderer = CachedTextRenderer(width, height, self.figure.dpi)
+                self._lastKey = key
+            return self.renderer
+
+    _CACHED_CANVAS.append(CachedTextCanvas)
+    return CachedTextCanvas
 
 
 class Drawing:
