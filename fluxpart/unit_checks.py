@@ -28,6 +28,7 @@ import math
 
 import numpy as np
 
+from .constants import CARBON_MOLAR_MASS
 from .variables import READER_VARIABLES, saturation_vapour_pressure, to_canonical, units_for
 
 __all__ = [
@@ -219,10 +220,12 @@ def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: 
     found = (f"99 % of |values| are below {p99:.3g}" if p99 < 1.0 else
              f"consecutive night values differ by a median of only {noise:.2g}, below the "
              "random error of any flux record in µmol m-2 s-1")
+    per_record = 1e6 / CARBON_MOLAR_MASS / (interval_minutes * 60.0)
     text = (f"column {columns['nee']!r} (nee, read as µmol m-2 s-1): {found}; the values look "
-            "22.7 times too small, as mg CO2 m-2 s-1: set [input.units] nee = "
-            "\"mg CO2 m-2 s-1\" (or list nee in [input] accept_units to keep the values as "
-            "they are)")
+            "too small for µmol m-2 s-1: set [input.units] nee = \"mg CO2 m-2 s-1\" if the "
+            "file is in mg CO2 m-2 s-1 (22.7 times smaller), or nee = \"g C m-2\" if it holds "
+            f"g C m-2 per {interval_minutes}-minute record ({per_record:.3g} times smaller) (or "
+            "list nee in [input] accept_units to keep the values as they are)")
     active = _active(converted, 5.0)
     nee_active = None if active is None else nee[active & np.isfinite(nee)]
     # Under warm, bright conditions an ecosystem's exchange together with the random

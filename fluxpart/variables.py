@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .constants import CO2_MOLAR_MASS, KELVIN_OFFSET
+from .constants import CARBON_MOLAR_MASS, CO2_MOLAR_MASS, KELVIN_OFFSET
 from .errors import UnitError
 
 __all__ = [
@@ -108,11 +108,11 @@ PPFD_PER_RG = 0.46 * 4.57
 _TEMPERATURE = {"°C": (1.0, 0.0), "degC": (1.0, 0.0), "C": (1.0, 0.0),
                 "K": (1.0, -KELVIN_OFFSET), "kelvin": (1.0, -KELVIN_OFFSET),
                 # degrees Fahrenheit: °C = (°F - 32) x 5/9 (NIST SP 811, appendix B (m))
-                "°F": (5.0 / 9.0, -32.0 * 5.0 / 9.0), "degF": (5.0 / 9.0, -32.0 * 5.0 / 9.0),
-                "F": (5.0 / 9.0, -32.0 * 5.0 / 9.0)}
+                "°F": (5.0 / 9.0, -32.0 * 5.0 / 9.0), "degF": (5.0 / 9.0, -32.0 * 5.0 / 9.0)}
 _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
     "nee": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),
-            "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0)},
+            "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0),
+            "g C m-2": (1e6 / CARBON_MOLAR_MASS, 0.0)},
     "rg": {"W m-2": (1.0, 0.0), "W/m2": (1.0, 0.0), "kW m-2": (1000.0, 0.0),
            "MJ m-2": (1e6, 0.0)},
     "tair": _TEMPERATURE,
@@ -129,7 +129,7 @@ _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
 #: Units of an amount per record interval rather than a rate: (variable, unit) whose
 #: scale is divided by the interval in seconds (``"MJ m-2"`` of Rg = energy received
 #: per record interval).
-PER_INTERVAL_UNITS = frozenset({("rg", "MJ m-2")})
+PER_INTERVAL_UNITS = frozenset({("rg", "MJ m-2"), ("nee", "g C m-2")})
 
 
 def units_for(name: str) -> tuple[str, ...]:

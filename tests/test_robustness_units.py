@@ -1,0 +1,32 @@
+"""Units users' files come in (fresh-eyes campaign).
+
+Outside facts: the standard atomic weight of carbon, 12.011 g mol-1 (IUPAC), and
+the length of a record interval (1800 s for half-hourly, 3600 s for hourly).
+"""
+
+import numpy as np
+import pytest
+
+from fluxpart.unit_checks import mixup_messages
+from fluxpart.variables import to_canonical
+
+
+@pytest.mark.parametrize("minutes", [30, 60])
+def test_nee_in_g_carbon_per_record(minutes):
+    """1 µmol m-2 s-1 over a record = 12.011e-6 g mol-1 x seconds g C m-2."""
+    grams = 12.011e-6 * minutes * 60
+    assert to_canonical([grams], "nee", "g C m-2",
+                        interval_minutes=minutes)[0] == pytest.approx(1.0, rel=1e-9)
+
+
+def test_too_small_nee_hint_names_both_units():
+    """NEE in g C m-2 per half hour read as µmol (46 times too small): the refusal names
+    both the mg CO2 and the g C per record unit, so the user picks the file's own."""
+    rng = np.random.default_rng(1)
+    hours = np.arange(48 * 30) % 48 / 2.0
+    sun = np.clip(np.sin((hours - 6) / 12 * np.pi), 0, None)
+    umol = 3.0 - 20.0 * sun + rng.normal(0, 1.0, hours.size)
+    converted = {"nee": umol * 12.011e-6 * 1800, "rg": 900 * sun, "tair": 15 + 8 * sun}
+    refusals, _ = mixup_messages(converted, {}, {"nee": "co2", "rg": "rg", "tair": "t"}, 30)
+    assert 'nee = "mg CO2 m-2 s-1"' in refusals["nee"]
+    assert 'nee = "g C m-2"' in refusals["nee"] and "46.3 times smaller" in refusals["nee"]
