@@ -109,6 +109,8 @@ class ThresholdEstimate:
     seasonal : pandas.DataFrame
         One row per year and season of the record: ``year``, ``season``,
         ``months`` (e.g. ``"DJF"``), ``night_records`` (usable night records),
+        ``temperature_classes`` (temperature classes or strata the season was
+        split into for its result; 0 where none was tested),
         ``temperature_classes_used`` (classes or strata that gave a threshold),
         ``threshold_detected`` [m s-1] (before the floor), ``threshold``
         [m s-1] (at least the floor; NaN where none was found) and ``reason``
