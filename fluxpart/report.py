@@ -439,20 +439,24 @@ def _frame_table(flat: pd.DataFrame, metadata, table_id: str, key: str) -> str:
         + (f'<br><span class="unit">[{_e(metadata.get(c, ("", ""))[0])}]</span>'
            if metadata.get(c, ("", ""))[0] not in ("", "1") else "") + "</th>"
         for c in flat.columns)
+    # column lists instead of iterrows: each column keeps its own type, and no Series
+    # is built per row
+    columns = list(flat.columns)
+    values = [flat[column].tolist() for column in columns]
+    decimals = [_decimals(metadata.get(column, ("", ""))[0], column, flat[column].dtype)
+                for column in columns]
     rows = []
-    for _, row in flat.iterrows():
-        label = _label(row[flat.columns[0]], key)
+    for position in range(len(flat)):
+        label = _label(values[0][position], key)
         cells = []
-        for column in flat.columns:
-            value = row[column]
-            if column == flat.columns[0]:
+        for column, column_values, places in zip(columns, values, decimals, strict=True):
+            value = column_values[position]
+            if column == columns[0]:
                 value = label
             elif isinstance(value, pd.Timestamp):
                 value = value.strftime("%Y-%m-%d %H:%M") if (value.hour or value.minute) \
                     else value.strftime("%Y-%m-%d")
-            unit = metadata.get(column, ("", ""))[0]
-            cells.append(_cell(value, _decimals(unit, column, flat[column].dtype),
-                               {"column": column, key: label}))
+            cells.append(_cell(value, places, {"column": column, key: label}))
         rows.append(f"<tr>{''.join(cells)}</tr>")
     return (f'<table id="{_e(table_id)}"><thead><tr>{head}</tr></thead>'
             f"<tbody>{''.join(rows)}</tbody></table>")
