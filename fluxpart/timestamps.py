@@ -257,6 +257,9 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "rows_after_header = 1")
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
+        elif "%" not in time_format and time_format.upper() != "ISO8601":
+            hint = ("; time_format holds no strptime code: write it with codes such as "
+                    "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
         raise TimestampError(
             f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
             f"{text.iloc[first]!r}, which does not match time_format = {time_format!r}; "

@@ -51,3 +51,13 @@ def test_padded_stamps_unchanged():
     text = [t.strftime("%d.%m.%Y %H%M") for t in truth]
     stamps = _parse(text, "%d.%m.%Y %H%M", columns=("Date", "Time"))
     assert list(stamps) == [pd.Timestamp(t) for t in truth]
+
+
+def test_format_without_codes_gets_a_hint():
+    """A human-style format ('YYYYMMDDhhmm') fails naming time_format and the codes to use."""
+    import pytest
+
+    from fluxpart.errors import TimestampError
+
+    with pytest.raises(TimestampError, match=r"time_format = 'YYYYMMDDhhmm'.*strptime code"):
+        _parse(["202101010030", "202101010100"], "YYYYMMDDhhmm", columns=("stamp",))
