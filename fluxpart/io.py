@@ -1368,6 +1368,8 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
                              f"{int(lines[first])} of {source!r} has {cell!r}, which is not a "
                              f"number; {int(bad.sum())} such cell(s){hint}")
     for code in numeric_codes:
+        if not math.isfinite(code):      # NaN and infinities are missing anyway; an
+            continue                     # infinite tolerance would blank every cell
         tolerance = 1e-6 * max(1.0, abs(code))
         with np.errstate(invalid="ignore", over="ignore"):
             is_code = is_code | (np.abs(numbers - code) <= tolerance)

@@ -85,3 +85,22 @@ def test_fahrenheit_unit_and_hint():
     fahrenheit = celsius * 9 / 5 + 32
     message = implausible_message("tair", fahrenheit, fahrenheit, None, "air_temp", (-9999,))
     assert message is not None and "tair = \"°F\"" in message
+
+
+@pytest.mark.parametrize("codes", ["[-9999, inf]", "[-9999, -inf, \"NA\"]", "[-9999, 1e400]"])
+def test_infinite_missing_code_blanks_nothing(example, tmp_path, codes):
+    """An infinite missing code (TOML inf, or 1e400 which overflows to it) is a no-op:
+    infinities are read as missing anyway; before, its infinite tolerance blanked every
+    cell of every column."""
+    from fluxpart.io import read_config
+
+    text = example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', f'path = "{example.with_suffix(".csv")}"')
+    plain = tmp_path / "plain.toml"
+    plain.write_text(text, encoding="utf-8")
+    coded = tmp_path / "coded.toml"
+    coded.write_text(text.replace("missing = [-9999]", f"missing = {codes}"), encoding="utf-8")
+    expected, _ = read_config(plain)
+    frame, _ = read_config(coded)
+    assert frame["nee"].notna().sum() == expected["nee"].notna().sum() > 0
+    assert frame.equals(expected)
