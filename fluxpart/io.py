@@ -713,7 +713,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     # the specific mix-ups first (their message names the fix), then the ranges
     accepted = []
     potential = _potential(starts, site, interval_minutes)
-    refusals, suspicions = mixup_messages(converted, units, mapping, interval_minutes, potential)
+    refusals, suspicions = mixup_messages(converted, units, mapping, interval_minutes, potential,
+                                          missing)
     warnings.extend(suspicions)
     for name, message in refusals.items():
         accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))

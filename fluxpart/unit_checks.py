@@ -51,6 +51,13 @@ IMPLAUSIBLE_SHARE = 0.05
 MIN_DAYS_FOR_UNIT_CHECKS = 7
 
 _IMPLAUSIBLE_MIN_COUNT = 5
+# Zero-code check of NEE (our choice): at least this many exact zeros, more than 1 % of
+# the present values, and this many times the mean count of the two values one
+# resolution step either side of 0 (a smooth distribution gives about 1); not judged
+# where the resolution exceeds this share of the median |NEE| (too coarse to tell).
+_ZERO_MIN_COUNT = 48
+_ZERO_SPIKE_RATIO = 10.0
+_ZERO_MAX_STEP_SHARE = 0.1
 # NEE sign check (our choice): the release tail of warm, bright records must reach more
 # than this many times as far as the uptake tail (95th vs 5th percentile; vegetated
 # sites show 0.0-0.4, reversed files 2.8 and more on the generated sites of
@@ -240,6 +247,42 @@ def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: 
                   "= \"mg CO2 m-2 s-1\"")
 
 
+def _zero_code_message(converted: dict, columns: dict, interval_minutes: int, missing=()):
+    """Exact zeros in NEE that a missing-value code explains and a flux does not.
+
+    A measured flux is a continuous quantity: at the file's resolution (the smallest
+    non-zero magnitude in the column) exactly 0 is about as likely as the values one
+    step either side of it. Zeros :data:`_ZERO_SPIKE_RATIO` times more frequent were
+    written by a logger for "no value".
+    Returns (refusal, warning).
+    """
+    nee = converted.get("nee")
+    if nee is None or any(not isinstance(c, str) and c == 0 for c in missing):
+        return None, None
+    present = nee[np.isfinite(nee)]
+    zeros = int(np.count_nonzero(present == 0.0))
+    if zeros < _ZERO_MIN_COUNT or zeros <= 0.01 * present.size:
+        return None, None
+    magnitude = np.abs(present[present != 0.0])
+    if magnitude.size == 0:
+        return None, None     # a constant series: the preflight names it
+    step = float(magnitude.min())
+    if step > _ZERO_MAX_STEP_SHARE * float(np.median(magnitude)):
+        return None, None     # rounded too coarsely for the spread: cannot tell
+    beside = int(np.count_nonzero(magnitude <= step * (1 + 1e-9)))
+    expected = beside / 2.0
+    if zeros <= _ZERO_SPIKE_RATIO * max(expected, 1.0):
+        return None, None
+    found = (f"{zeros} of {present.size} present values ({zeros / present.size:.1%}) are "
+             f"exactly 0, against {beside} at ±{step:.3g}, the file's resolution, beside it; "
+             "a flux is not exactly 0 that often")
+    if _enough_days(present.size, interval_minutes):
+        return (f"column {columns['nee']!r} (nee): {found}: 0 looks like the logger's code "
+                "for a missing value: add 0 to [input] missing (or list nee in [input] "
+                "accept_units to keep the zeros as measured)"), None
+    return None, f"nee: {found}; if 0 marks missing values, add 0 to [input] missing"
+
+
 def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, potential=None):
     """NEE with the opposite sign (uptake positive, e.g. NEP mapped as ``nee``).
 
@@ -389,7 +432,7 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
 
 
 def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes: int,
-                   potential=None) -> tuple[dict, list]:
+                   potential=None, missing=()) -> tuple[dict, list]:
     """Find unit mix-ups that the plausible ranges let through.
 
     Parameters
@@ -406,6 +449,8 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
     potential : array_like, optional
         Potential (extraterrestrial) radiation of each record [W m-2]; enables the
         Rg check.
+    missing : tuple, optional
+        Missing-value codes in force (a declared 0 turns the zero-code check off).
 
     Returns
     -------
@@ -416,11 +461,17 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
     """
     refusals, warnings = {}, []
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        refuse, warn = _nee_message(converted, units, columns, interval_minutes, potential)
+        refuse, warn = _zero_code_message(converted, columns, interval_minutes, missing)
         if refuse:
             refusals["nee"] = refuse
         if warn:
             warnings.append(warn)
+        if "nee" not in refusals:
+            refuse, warn = _nee_message(converted, units, columns, interval_minutes, potential)
+            if refuse:
+                refusals["nee"] = refuse
+            if warn:
+                warnings.append(warn)
         if "nee" not in refusals:
             refuse, warn = _nee_sign_message(converted, columns, interval_minutes, potential)
             if refuse:

@@ -30,3 +30,39 @@ def test_too_small_nee_hint_names_both_units():
     refusals, _ = mixup_messages(converted, {}, {"nee": "co2", "rg": "rg", "tair": "t"}, 30)
     assert 'nee = "mg CO2 m-2 s-1"' in refusals["nee"]
     assert 'nee = "g C m-2"' in refusals["nee"] and "46.3 times smaller" in refusals["nee"]
+
+
+@pytest.fixture(scope="module")
+def fen_year():
+    from fluxpart import scenarios
+
+    return scenarios.generate(4)      # a high-latitude fen: NEE near 0 much of the year
+
+
+def _nee_refusal(nee, year):
+    minutes = int((year.frame.index[1] - year.frame.index[0]).total_seconds() // 60)
+    names = ("rg", "tair", "vpd")
+    converted = {"nee": nee} | {n: year.frame[n].to_numpy(float) for n in names}
+    refusals, _ = mixup_messages(converted, {}, {"nee": "co2_flux"} | {n: n for n in names},
+                                 minutes)
+    return refusals.get("nee")
+
+
+@pytest.mark.parametrize("decimals", [None, 3, 1, 0])
+def test_exact_zeros_of_a_rounded_flux_pass(fen_year, decimals):
+    """A flux rounded to the file's resolution has no more zeros than values beside 0
+    (a continuous quantity), down to whole µmol m-2 s-1."""
+    nee = fen_year.frame["nee"].to_numpy(float)
+    if decimals is not None:
+        nee = np.round(nee, decimals)
+    assert _nee_refusal(nee, fen_year) is None
+
+
+def test_zero_written_for_missing_refused(fen_year):
+    """A logger writing 0 for 'no value' in a third of the records: refused naming the
+    column and [input] missing; a declared 0 code turns the check off."""
+    nee = np.round(fen_year.frame["nee"].to_numpy(float), 3)
+    nee[np.random.default_rng(0).random(nee.size) < 0.3] = 0.0
+    message = _nee_refusal(nee, fen_year)
+    assert message is not None and "'co2_flux' (nee)" in message
+    assert "add 0 to [input] missing" in message
