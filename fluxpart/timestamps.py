@@ -381,9 +381,19 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
     backwards = np.flatnonzero(steps < 0)
     if backwards.size:
         row = int(backwards[0]) + 1
+        back_days = -float(steps[row - 1]) / 86400.0
+        if back_days > 1.0:
+            # records merely out of order are a few records apart; a jump back by days
+            # or years is a logger clock reset, which sorting would turn into a false
+            # stretch of records far from the rest
+            hint = (f"the stamps jump back by {back_days:.0f} days ({backwards.size} backward "
+                    "step(s) in all): a logger clock reset or rows of another period; correct "
+                    "or remove those rows in a copy of the file (sorting would misplace them)")
+        else:
+            hint = "sort a copy of the file by time"
         raise NonMonotonicTimestampError(
             f"stamps go backwards at {_where(source, lines, row)}: {text.iloc[row]!r} comes "
-            f"after {text.iloc[row - 1]!r}; sort a copy of the file by time")
+            f"after {text.iloc[row - 1]!r}; {hint}")
 
 
 def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> int:

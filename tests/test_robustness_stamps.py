@@ -61,3 +61,20 @@ def test_format_without_codes_gets_a_hint():
 
     with pytest.raises(TimestampError, match=r"time_format = 'YYYYMMDDhhmm'.*strptime code"):
         _parse(["202101010030", "202101010100"], "YYYYMMDDhhmm", columns=("stamp",))
+
+
+def test_clock_reset_not_blamed_on_sorting():
+    """Rows stamped 2000-01-01 inside a 2021 file (a logger clock reset) are named as a
+    jump back by days, not met with 'sort the file', which would misplace them."""
+    import pytest
+
+    from fluxpart.errors import NonMonotonicTimestampError
+    from fluxpart.timestamps import check_order
+
+    stamps = pd.DatetimeIndex(["2021-04-15 03:30", "2021-04-15 04:00", "2000-01-01 00:30",
+                               "2000-01-01 01:00", "2021-04-15 05:30"])
+    text = pd.Series(stamps.strftime("%Y%m%d%H%M"))
+    with pytest.raises(NonMonotonicTimestampError, match=r"line 4 .*jump back by 7775 days"
+                                                         r".*clock reset") as caught:
+        check_order(stamps, text, "t.dat", np.arange(2, 7))
+    assert "sort a copy" not in str(caught.value)
