@@ -497,6 +497,12 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
         e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
         rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
         respiration_driver=temperature, e0_method=config.e0_method)
+    # the daytime method estimates E0 from its own night windows; where none has the
+    # temperature range for it (e.g. a damped soil temperature), the nighttime method's
+    # E0 stands in, flagged "fallback" in the daytime parameter table and warned about
+    e0_finite = np.asarray(night.e0, dtype=float)[np.isfinite(night.e0)]
+    day_e0_fallback = config.e0_fallback if config.e0_fallback is not None or not \
+        e0_finite.size else float(np.median(e0_finite))
     day = daytime.partition_daytime(
         frame.index, nee_measured, filled_drivers["rg_filled"].to_numpy(),
         filled_drivers["vpd_filled"].to_numpy(), temperature_filled, is_night,
@@ -506,7 +512,7 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
         beta0_max=config.daytime_beta0_max, e0_window_days=config.daytime_e0_window_days,
         e0_min_points=config.e0_min_points,
         e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
-        e0_max_relative_error=config.e0_max_relative_error, e0_fallback=config.e0_fallback,
+        e0_max_relative_error=config.e0_max_relative_error, e0_fallback=day_e0_fallback,
         night_min_points=config.daytime_night_min_points,
         consistency_z=config.daytime_consistency_z, night_in_fit=config.daytime_night_in_fit)
     return too_calm, nee_measured, filled, night, day
@@ -631,6 +637,13 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         step(f"gap filling and partitioning ({name})")
 
     too_calm, nee_measured, filled, night, day = outcomes["central"]
+    if config.e0_fallback is None and (day.parameters["e0_source"] == "fallback").all():
+        warnings.append(
+            f"daytime partitioning: no night window gave an E0 on {temperature} (at least "
+            f"{config.e0_min_points} night records spanning {config.e0_min_temperature_range} K "
+            f"within {max(config.daytime_e0_window_days)} days); the nighttime method's E0 "
+            f"({float(np.median(day.e0)):.0f} K) was used, flagged 'fallback' in the daytime "
+            "parameter table, so the two methods are not independent in their E0")
     flags = screens.flags.assign(nee_low_ustar=too_calm)
     reason = screens.reason.to_numpy().copy()
     reason[(reason == 0) & too_calm] = _REASON_LOW_USTAR

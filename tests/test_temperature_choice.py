@@ -151,3 +151,18 @@ def test_a_near_tie_keeps_air_temperature():
     choice = tc.choose_respiration_temperature(index, nee, tair, tsoil, night)
     assert -2.0 < choice.delta_bic < 0.0
     assert choice.driver == "tair" and "equally well" in choice.reason
+
+
+def test_a_fit_with_e0_pressed_against_the_range_is_set_aside():
+    """Known truth: respiration planted on air temperature (E0 220 K); the soil
+    temperature offered swings 0.45 times as much, so a Lloyd–Taylor fit on it needs
+    an E0 near 220 / 0.45 ≈ 490 K, above the accepted 30–450 K (Reichstein et al. 2005 (m)), to follow
+    the flux. That fit is set aside and air temperature is chosen, with the
+    reason naming the bound."""
+    rng, index, tair, _, is_night = _weather(seed=3)
+    damped = tair.mean() + 0.45 * (tair - tair.mean())
+    nee = _night_nee(rng, index, tair, is_night, noise=0.6)
+    choice = choose_respiration_temperature(index, nee, tair, damped, is_night)
+    assert choice.driver == "tair"
+    assert "within one standard error of the accepted range [30.0, 450.0] K" in choice.reason
+    assert "soil-temperature fit puts E0 at" in choice.reason

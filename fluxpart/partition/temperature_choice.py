@@ -15,6 +15,13 @@ number of parameters, so the Bayesian information criterion reduces to
 (Schwarz 1978). Soil temperature is chosen when it leaves the smaller sum of
 squared residuals (ΔBIC < 0); a tie, a failed soil-temperature fit or too few
 shared records keep air temperature, the temperature every tower measures.
+
+Before the comparison, a candidate whose fitted E0 lies within one standard
+error of an end of the accepted range (``e0_bounds``) is set aside when the other
+candidate's is not: an E0 pressed against the range says the temperature does
+not describe the night flux (a damped soil temperature drives E0 up to the upper
+end, a temperature unrelated to the flux pulls it down to the lower end), whatever
+its sum of squares.
 """
 
 from __future__ import annotations
@@ -26,6 +33,8 @@ import numpy as np
 from ..errors import InsufficientDataError
 from ..uncertainty import driver_weight
 from .nighttime import partition_nighttime
+
+_DEFAULT_E0_BOUNDS = (30.0, 450.0)   # partition_nighttime's default e0_bounds [K]
 
 MIN_SHARED_RECORDS = 10
 """Fewest night records both fits must cover for a comparison (as in
@@ -135,12 +144,15 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     if tsoil is None:
         return TemperatureChoice("tair", "the input has no soil temperature",
                                  {"tair": np.nan, "tsoil": np.nan}, 0, np.nan, np.nan)
-    reco = {"tair": _night_reco(index, nee, tair, night, "tair", nighttime_settings)}
+    fits = {"tair": _night_fit(index, nee, tair, night, "tair", nighttime_settings)}
     try:
-        reco["tsoil"] = _night_reco(index, nee, tsoil, night, "tsoil", nighttime_settings)
+        fits["tsoil"] = _night_fit(index, nee, tsoil, night, "tsoil", nighttime_settings)
     except InsufficientDataError as error:
         return TemperatureChoice("tair", f"the soil-temperature fit failed ({error})",
                                  {"tair": np.nan, "tsoil": np.nan}, 0, np.nan, np.nan)
+    reco = {name: fit.reco for name, fit in fits.items()}
+    bounds = nighttime_settings.get("e0_bounds", _DEFAULT_E0_BOUNDS)
+    pressed = {name: _e0_at_bound(fit.e0_annual, bounds) for name, fit in fits.items()}
     shared = night & np.isfinite(nee) & np.isfinite(reco["tair"]) & np.isfinite(reco["tsoil"])
     count = int(shared.sum())
     ssr = {name: float(np.sum(np.square(nee[shared] - values[shared])))
@@ -150,6 +162,14 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
                                  ssr, count, np.nan, np.nan)
     delta_bic = count * float(np.log(ssr["tsoil"] / ssr["tair"]))
     weight = driver_weight(nee, shared, reco["tair"], reco["tsoil"])
+    if bool(pressed["tair"]) != bool(pressed["tsoil"]):
+        driver, set_aside = ("tair", "tsoil") if pressed["tsoil"] else ("tsoil", "tair")
+        words = {"tair": "air", "tsoil": "soil"}
+        reason = (f"the {words[set_aside]}-temperature fit puts E0 at {pressed[set_aside]} K, "
+                  f"within one standard error of the accepted range {list(bounds)} K: "
+                  f"{words[driver]} temperature used (ΔBIC soil - air = {delta_bic:.1f} over "
+                  f"{count} records)")
+        return TemperatureChoice(driver, reason, ssr, count, delta_bic, weight)
     driver = "tsoil" if delta_bic < -MIN_EVIDENCE_BIC else "tair"
     if driver == "tair" and delta_bic < 0:
         reason = (f"soil and air temperature explain the measured night NEE equally well "
@@ -162,8 +182,18 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     return TemperatureChoice(driver, reason, ssr, count, delta_bic, weight)
 
 
-def _night_reco(index, nee, temperature, night, name, settings) -> np.ndarray:
-    """Nighttime-method Reco on the measured temperature (NaN where it is missing)."""
+def _night_fit(index, nee, temperature, night, name, settings):
+    """Nighttime-method fit on the measured temperature."""
     temperature = np.asarray(temperature, dtype=float)
     return partition_nighttime(index, nee, nee, temperature, temperature, night,
-                               respiration_driver=name, **settings).reco
+                               respiration_driver=name, **settings)
+
+
+def _e0_at_bound(e0_annual, bounds):
+    """``"E0 ± se"`` text of the first year whose E0 is within one s.e. of a bound, else ""."""
+    for _, row in e0_annual.iterrows():
+        e0, se = float(row["e0"]), float(row.get("e0_se", np.nan))
+        se = se if np.isfinite(se) else 0.0
+        if np.isfinite(e0) and (e0 - se <= bounds[0] or e0 + se >= bounds[1]):
+            return f"{e0:.0f} ± {se:.0f}"
+    return ""
