@@ -292,3 +292,24 @@ def test_a_failing_ustar_scenario_is_left_out_with_a_warning(monkeypatch):
     assert any("u* scenario ustar_p84 not computed" in w for w in result.warnings)
     assert np.isfinite(result.annual["nee_uncertainty_ustar"]).all()
     assert "nee_ustar_p84" not in result.annual.columns
+
+
+def test_daytime_method_without_its_own_e0_falls_back_to_the_nighttime_e0_with_a_warning():
+    """Known truth (generated site-year, dry savanna, 60-min records): on the damped
+    soil temperature no daytime night window spans the 5 K an E0 fit needs
+    (Reichstein et al. 2005 (m)). The run completes: every daytime window carries
+    the nighttime method's E0, flagged, and a warning says the methods share it."""
+    import dataclasses
+
+    from fluxpart import scenarios
+    from fluxpart.errors import FluxpartWarning
+
+    site_year = scenarios.generate(30)
+    config = dataclasses.replace(Config(), respiration_driver="tsoil", ustar_scenarios=())
+    with pytest.warns(FluxpartWarning, match="the nighttime method's E0"):
+        result = process(site_year.frame, site_year.site, config)
+    table = result.parameters["daytime"]
+    assert (table["e0_source"] == "fallback").all()
+    night_e0 = result.timeseries["e0_nighttime"].to_numpy()
+    assert np.allclose(table["e0"], np.median(night_e0[np.isfinite(night_e0)]))
+    assert np.isfinite(result.annual["gpp_daytime"]).all()
