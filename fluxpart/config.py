@@ -179,7 +179,10 @@ class Config:
     e0_fallback : float or None
         E0 to use, flagged, when no window is acceptable [K]. ``None`` (default)
         makes such a year fail with an :class:`~fluxpart.errors.InsufficientDataError`.
-        The daytime method uses it likewise when none of its night windows gives an E0.
+        The daytime method uses it likewise when none of its night windows gives an E0;
+        with ``None`` it then takes the year's nighttime E0 instead of failing, flagged
+        ``"fallback"`` in its parameter table and warned about (the two methods then
+        share E0, so their difference no longer tests it).
     rref_window_days : float
         Window for the reference respiration with E0 fixed [days]; 4 days,
         Reichstein et al. (2005).
