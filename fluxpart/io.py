@@ -1135,7 +1135,9 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     lines = lines[~blank]
     if raw.empty:
         raise InputFileError(f"input file {str(path)!r} has a header but no records")
-    return raw, lines, [str(h) for h in header]
+    # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
+    raw.columns = [str(c).strip() for c in raw.columns]
+    return raw, lines, [str(h).strip() for h in header]
 
 
 def _check_header_line(raw: pd.DataFrame, text: str, delimiter: str, time_columns: tuple,

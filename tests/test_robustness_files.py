@@ -104,3 +104,22 @@ def test_infinite_missing_code_blanks_nothing(example, tmp_path, codes):
     frame, _ = read_config(coded)
     assert frame["nee"].notna().sum() == expected["nee"].notna().sum() > 0
     assert frame.equals(expected)
+
+
+def test_header_padded_with_spaces_reads_like_plain(example, tmp_path):
+    """A file written as 'a, b, c' (a space after each comma, as hand-made and spreadsheet
+    exports often are) gives the same frame as the plain file."""
+    from fluxpart.io import read_config
+
+    text = example.read_text(encoding="utf-8")
+    plain = tmp_path / "plain.toml"
+    plain.write_text(text.replace('path = "quillmoor_grassland.csv"',
+                                  f'path = "{example.with_suffix(".csv")}"'), encoding="utf-8")
+    padded_csv = tmp_path / "padded.csv"
+    padded_csv.write_text(example.with_suffix(".csv").read_text().replace(",", ", "))
+    padded = tmp_path / "padded.toml"
+    padded.write_text(text.replace('path = "quillmoor_grassland.csv"', 'path = "padded.csv"'),
+                      encoding="utf-8")
+    expected, _ = read_config(plain)
+    frame, _ = read_config(padded)
+    assert frame.equals(expected)
