@@ -829,7 +829,8 @@ def _levenberg_marquardt(theta, fixed, lower, upper, windows, mask, vpd0, max_it
         small_change = better & ((cost - trial_cost) <= _FTOL * np.maximum(cost, 1e-300))
         small_step = better & np.all(np.abs(trial - current) <= _XTOL * (np.abs(current) + _XTOL),
                                      axis=1)
-        damping = np.where(negligible, damping,
+        # windows that finished stay in the arrays until they are dropped, inert
+        damping = np.where(negligible | ~live, damping,
                            np.where(better, damping / 3.0, damping * 4.0))
         finished = live & (negligible | small_change | small_step | (damping > _LAMBDA_MAX))
         current = np.where(better[:, None], trial, current)
