@@ -54,6 +54,10 @@ _HOUR_24 = (
 )
 
 
+#: IANA zone names (or their first part) that denote a fixed offset rather than a place.
+_OFFSET_ZONE_PREFIXES = frozenset({"UTC", "Etc", "GMT", "UCT", "Zulu", "Universal"})
+
+
 @dataclass(frozen=True)
 class ParsedStamps:
     """Stamps of one file in local standard time, and what it took to get them.
@@ -303,7 +307,9 @@ def check_time_zone(time_zone, utc_offset: float, when=None) -> str:
     ------
     ConfigError
         The name is not a zone known to the system's time-zone database, or the
-        zone's standard (winter) offset differs from `utc_offset`.
+        zone's standard (winter) offset differs from `utc_offset` (not checked for
+        ``"UTC"``, ``"Etc/UTC"`` and the like: stamps kept in UTC are converted to the
+        site's local standard time).
     """
     from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
@@ -321,10 +327,19 @@ def check_time_zone(time_zone, utc_offset: float, when=None) -> str:
         probe = moment.replace(month=month, day=1, hour=12, tzinfo=zone)
         hours.add((probe.utcoffset() - probe.dst()) / timedelta(hours=1))
     standard = min(hours)
+    names_offset = time_zone.split("/")[0] in _OFFSET_ZONE_PREFIXES
+    if names_offset and standard == 0.0:
+        # "UTC", "Etc/UTC": stamps kept in UTC (as many loggers are), converted to the
+        # site's local standard time; the name states the stamps' time, not the site's
+        return time_zone
     if abs(standard - float(utc_offset)) > 1e-9:
+        posix = ""
+        if time_zone.startswith("Etc/GMT"):
+            posix = (f"; note that Etc/GMT zones carry the POSIX sign (\"Etc/GMT-1\" is UTC+1), "
+                     f"so UTC{float(utc_offset):+g} is \"Etc/GMT{-float(utc_offset):+g}\"")
         raise ConfigError(f"[input] time_zone = {time_zone!r} has standard time UTC{standard:+g} "
                           f"but [site] utc_offset = {float(utc_offset):g}; set utc_offset = "
-                          f"{standard:g} (the offset without daylight saving)")
+                          f"{standard:g} (the offset without daylight saving){posix}")
     return time_zone
 
 

@@ -78,3 +78,29 @@ def test_clock_reset_not_blamed_on_sorting():
                                                          r".*clock reset") as caught:
         check_order(stamps, text, "t.dat", np.arange(2, 7))
     assert "sort a copy" not in str(caught.value)
+
+
+def test_stamps_in_utc_with_time_zone_utc():
+    """A logger kept on UTC: time_zone = "UTC" converts its stamps to the site's local
+    standard time (UTC+1 here: 11:00 UTC is 12:00), as the standard library's zoneinfo
+    does; a place zone whose standard offset differs stays an error."""
+    from datetime import timezone
+
+    import pytest
+
+    from fluxpart.errors import ConfigError
+
+    utc = [datetime(2021, 7, 1, 11, 0) + timedelta(minutes=30 * k) for k in range(4)]
+    text = pd.Series([t.strftime("%Y-%m-%d %H:%M") for t in utc])
+    stamps = parse_stamps(text, "%Y-%m-%d %H:%M", time_columns=("stamp",), source="t.dat",
+                          lines=np.arange(2, 6), utc_offset=1.0, time_zone="UTC").stamps
+    local = timezone(timedelta(hours=1))
+    expected = [t.replace(tzinfo=timezone.utc).astimezone(local).replace(tzinfo=None)
+                for t in utc]
+    assert list(stamps) == [pd.Timestamp(t) for t in expected]
+    with pytest.raises(ConfigError, match="Europe/London.*utc_offset = 0"):
+        parse_stamps(text, "%Y-%m-%d %H:%M", time_columns=("stamp",), source="t.dat",
+                     lines=np.arange(2, 6), utc_offset=1.0, time_zone="Europe/London")
+    with pytest.raises(ConfigError, match="POSIX sign"):
+        parse_stamps(text, "%Y-%m-%d %H:%M", time_columns=("stamp",), source="t.dat",
+                     lines=np.arange(2, 6), utc_offset=1.0, time_zone="Etc/GMT+1")
