@@ -1365,6 +1365,11 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
                 pd.to_numeric(cell.replace(",", "."), errors="coerce")):
             hint = ("; it looks like a decimal comma: set [input] decimal = \",\" (and the "
                     "delimiter, e.g. delimiter = \";\")")
+        elif name.startswith("nee_flag"):
+            # a missing flag rejects nothing, so "add it to missing" would keep bad records
+            hint = ("; site flags must be numbers (a record is kept where its flag is in "
+                    "[input] flag_accept): recode text flags as numbers in a copy of the file "
+                    f"(listing {cell!r} in [input] missing would keep those records)")
         else:
             hint = f"; if {cell!r} marks missing data, add it to [input] missing"
         raise InputFileError(f"column {column!r} ({name.split(':')[0]}): line "

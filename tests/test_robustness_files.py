@@ -123,3 +123,23 @@ def test_header_padded_with_spaces_reads_like_plain(example, tmp_path):
     expected, _ = read_config(plain)
     frame, _ = read_config(padded)
     assert frame.equals(expected)
+
+
+def test_text_site_flag_hint_does_not_suggest_missing(example, tmp_path, capsys):
+    """A text flag ('bad') must not be met with 'add it to [input] missing': a missing
+    flag rejects nothing (README, nee_flag), so the bad records would be kept."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    column = lines[0].split(",").index("qc_co2")
+    for row in range(200, 300):
+        cells = lines[row].split(",")
+        cells[column] = "bad"
+        lines[row] = ",".join(cells)
+    data = tmp_path / "flags.csv"
+    data.write_text("\n".join(lines) + "\n")
+    config = tmp_path / "site.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', 'path = "flags.csv"'), encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "'qc_co2' (nee_flag)" in line and "flag_accept" in line
+    assert "add it to [input] missing" not in line
