@@ -628,6 +628,7 @@ def figure_cumulative(drawing, written, interval) -> Figure:
     axis.axhline(0.0, color="#555555", linewidth=0.8)
     drawing.date_axis(axis, ticks=13)
     axis.set_ylabel(f"Cumulative NEE [{_CARBON_UNIT}]")
+    drawing.few_ticks(axis, x=0, y=6)
     starts = sorted({p[1] for p in periods.values()})
     since = ""
     if len(periods) == 1:
@@ -709,6 +710,7 @@ def figure_fill_quality(drawing, written, interval) -> Figure:
     bottom.stackplot(x, *[share[:, names.index(n)] for n in present],
                      colors=[colours[n] for n in present], labels=present, linewidth=0)
     bottom.set_ylim(0, 1)
+    bottom.set_yticks([0.0, 0.5, 1.0])
     bottom.set_ylabel("Share of the day")
     bottom.set_title("Daily share by fill quality", loc="left")
     bottom.legend(loc="upper center", bbox_to_anchor=(0.5, -0.22), ncols=len(present))
@@ -901,6 +903,7 @@ def figure_clock(drawing, written, interval) -> Figure:
         axis.grid(False, axis="x")
         axis.tick_params(labelsize=7.5)
         axis.set_ylabel("[W m-2]")
+        drawing.few_ticks(axis, x=0, y=4)
     rows[-1].set_xlabel("Time of day [h] within each month (local standard time)", fontsize=8,
                         loc="left")
     rows[-1].legend(loc="upper right", bbox_to_anchor=(1.0, -0.1), ncols=2, fontsize=7.5)
@@ -940,6 +943,7 @@ def figure_monthly(drawing, written) -> Figure:
     axis.axhline(0.0, color="#777777", linewidth=0.6)
     drawing.date_axis(axis, ticks=13)
     axis.set_ylabel(f"Monthly sum [{_CARBON_UNIT}]")
+    drawing.few_ticks(axis, x=0, y=6)
     axis.set_title("Monthly sums by both partitioning methods", loc="left")
     axis.legend(loc="upper left", ncols=3)
     bar_text = ("error bars are ±1.96 times the monthly 1-sigma written by the run" if bars
@@ -990,6 +994,7 @@ def figure_diurnal(drawing, written, interval) -> Figure:
     axis.tick_params(axis="x", length=0)
     axis.grid(False, axis="x")
     axis.set_ylabel(f"[{_FLUX_UNIT}]")
+    drawing.few_ticks(axis, x=0, y=6)
     axis.set_title("Mean diurnal course per month, 0–24 h local standard time within each "
                    "month", loc="left")
     axis.legend(loc="upper center", bbox_to_anchor=(0.5, -0.1), ncols=5)
@@ -1065,6 +1070,7 @@ def figure_night_respiration(drawing, written, interval) -> Figure:
             axis.legend(loc="upper left")
         axis.set_xlabel(f"{_temperature_label(temperature_column)} [°C]")
         axis.set_ylabel(f"Night NEE [{_FLUX_UNIT}]")
+        drawing.few_ticks(axis, x=6, y=5)
     if scatter is not None:
         box = axes[-1].get_position()
         bar_axis = figure.add_axes((box.x1 + 0.15 / width, box.y0, 0.12 / width, box.height))
@@ -1137,6 +1143,7 @@ def figure_ustar(drawing, written) -> Figure:
     else:
         left.set_xlabel("u* (class mean) [m s-1]")
         left.set_ylabel(f"Night NEE (class mean) [{_FLUX_UNIT}]")
+        drawing.few_ticks(left, x=5, y=5)
         left.legend(loc="lower right")
     left.set_title(f"Night NEE in {classes} u* classes", loc="left")
     annual_draws = (draws[draws["period"] == "year"]
@@ -1159,6 +1166,7 @@ def figure_ustar(drawing, written) -> Figure:
                               color=colours[label], linestyle="--", linewidth=1.4)
         right.set_xlabel("u* threshold [m s-1]")
         right.set_ylabel("Bootstrap draws [count]")
+        drawing.few_ticks(right, x=5, y=5)
         right.legend(loc="upper right")
     else:
         _no_data(right, "no bootstrap distribution\n(fixed threshold or no draws)")
@@ -1258,6 +1266,7 @@ def figure_light_response(drawing, written) -> Figure:
         twin.plot(centres, parameters["alpha"].to_numpy(dtype=float), color=_GREEN,
                   linewidth=1.0, linestyle=":", label="α")
         twin.set_ylabel("α [µmol J-1]", color=_GREEN)
+        drawing.few_ticks(twin, x=0, y=4)
         twin.grid(False)
         bound = written.setting("daytime_beta0_max")
         if isinstance(bound, (int, float)):
@@ -1266,6 +1275,7 @@ def figure_light_response(drawing, written) -> Figure:
                                   float(bound) if isinstance(bound, (int, float)) else 1.0))
         timeline.set_ylim(-0.05 * top, 1.45 * top)
         timeline.set_ylabel(f"β0 [{_FLUX_UNIT}]", fontsize=8)
+        drawing.few_ticks(timeline, x=0, y=4)
         timeline.legend(loc="upper left", ncols=4, fontsize=7.5, frameon=True,
                         framealpha=0.9, edgecolor="#cccccc")
         drawing.date_axis(timeline, ticks=13)
