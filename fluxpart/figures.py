@@ -598,6 +598,19 @@ def cumulative_bands(written, interval):
     return out, scenario_columns, has_random
 
 
+def _thinned(count: int, most: int = 2000) -> np.ndarray:
+    """Positions of every k-th of `count` points and the last, k = ceil(count / most).
+
+    Deterministic thinning for curves denser than a figure can show: 2000 points
+    are about two per pixel column of a 1000-pixel-wide figure, so a smooth curve
+    such as a cumulative sum looks the same, and the last point (the period's sum)
+    is always drawn.
+    """
+    step = max(1, -(-count // most))
+    return np.unique(np.append(np.arange(0, count, step), count - 1)) if count else \
+        np.arange(0)
+
+
 _BAND_STYLE = {
     "interval": ("95 % interval of the annual NEE (written), spread over time", 0.18, None),
     "random": ("95 % random-error band", 0.3, None),
@@ -617,6 +630,9 @@ def figure_cumulative(drawing, written, interval) -> Figure:
         if any(kind == "interval" for _, _, kind in bands):
             # the written 95 % interval already holds the random and u* parts
             bands = [band for band in bands if band[2] == "interval"]
+        keep = _thinned(len(times))
+        times, cumulative = times[keep], cumulative[keep]
+        bands = [(low[keep], high[keep], kind) for low, high, kind in bands]
         for low, high, kind in bands:
             text, alpha, hatch = _BAND_STYLE[kind]
             axis.fill_between(times, low, high, color=colour, alpha=alpha, hatch=hatch,
