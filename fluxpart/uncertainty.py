@@ -960,8 +960,9 @@ def window_membership(index, windows: pd.DataFrame, value="rref", se="rref_se") 
         Position of the nearest retained window centre per record (-1 if none).
     relative_se : numpy.ndarray
         ``se / value`` of that window [1]. Where a window's standard error is not
-        finite (a parameter at a bound or fixed), the median relative standard
-        error of the site's other windows stands in.
+        finite (a parameter at a bound or fixed) or not smaller than the value (a
+        value indistinguishable from zero, i.e. at its bound), the median relative
+        standard error of the site's other windows stands in.
     """
     needed = {"window_start", "window_end", value, se}
     n = len(index)
@@ -980,8 +981,12 @@ def window_membership(index, windows: pd.DataFrame, value="rref", se="rref_se") 
     order = np.argsort(centres, kind="stable")
     centres = centres[order]
     relative = (kept[se].to_numpy(dtype=float) / kept[value].to_numpy(dtype=float))[order]
-    typical = np.nanmedian(relative) if np.isfinite(relative).any() else np.nan
-    relative = np.where(np.isfinite(relative), relative, typical)
+    # a value within one standard error of zero is a parameter at its bound: its records'
+    # Reco comes mostly from the neighbouring windows, so se / value (up to 1e4 at a
+    # fitted Rref of 1e-5) would scale their error by a ratio that is not theirs
+    resolved = np.isfinite(relative) & (relative < 1.0)
+    typical = np.median(relative[resolved]) if resolved.any() else np.nan
+    relative = np.where(resolved, relative, typical)
     times = index.asi8.astype(float)
     right = np.clip(np.searchsorted(centres, times), 0, centres.size - 1)
     left = np.clip(right - 1, 0, centres.size - 1)

@@ -477,3 +477,20 @@ def test_driver_weight_favours_the_temperature_that_fits_the_night_data():
     assert driver_weight(nee, night, worse, truth) > 1 - 1e-6
     assert driver_weight(nee, night, truth, truth) == pytest.approx(0.5)
     assert driver_weight(nee[:5], night[:5], truth[:5], worse[:5]) == 0.0
+
+
+def test_window_at_zero_takes_the_typical_relative_error_not_se_over_value():
+    """A window Rref of 1e-5 ± 0.15 (a fit pressed against Rref = 0) would give a
+    relative error of 15000; it takes the median se/value of the resolved windows
+    (0.1 and 0.2 -> 0.15), as a window without a finite standard error does."""
+    from fluxpart.uncertainty import window_membership
+
+    starts = pd.to_datetime(["2021-06-01", "2021-06-05", "2021-06-09", "2021-06-13"])
+    windows = pd.DataFrame({"window_start": starts, "window_end": starts + pd.Timedelta(days=4),
+                            "rref": [1.0, 2.0, 1e-5, 3.0], "rref_se": [0.1, 0.4, 0.15, np.nan]})
+    index = pd.date_range("2021-06-01", periods=16 * 48, freq="30min")
+    window, relative = window_membership(index, windows)
+    assert set(np.unique(window)) == {0, 1, 2, 3}
+    by_window = dict(zip(window, relative, strict=True))
+    assert by_window[0] == pytest.approx(0.1) and by_window[1] == pytest.approx(0.2)
+    assert by_window[2] == pytest.approx(0.15) and by_window[3] == pytest.approx(0.15)
