@@ -141,6 +141,9 @@ _MODEL_INPUTS = ("nee", "rg", "vpd", "factor", "weight")
 _JACOBIAN_INPUTS = ("light", "excess", "weight", "factor_weight")
 _ALPHA_START = 0.01          # µmol J-1, Lasslop et al. (2010) (m)
 _RREF_FLOOR_START = 0.1      # µmol m-2 s-1, keeps the start off the bound (our choice)
+# µmol m-2 s-1: a fitted Rref below this is the bound 0 reached to within the iteration's
+# tolerance (a thousandth of the smallest night respiration a tower resolves; our choice)
+_RREF_AT_ZERO = 1e-3
 _LAMBDA_START = 1e-3         # Marquardt damping, usual starting value (common practice)
 _LAMBDA_MAX = 1e10
 _FTOL = 1e-10                # relative cost change at convergence
@@ -1017,7 +1020,7 @@ def _judge(theta, errors, fixed, fitted, converged, lower, upper, rref_night, rr
             np.isfinite(distance), distance > consistency_z, False)
     rejections = [(~fitted, "too few daytime records"), (~converged, "no convergence")]
     replacements = [
-        (rref <= 0, "rref at zero"),
+        (rref <= _RREF_AT_ZERO, "rref at zero"),
         (alpha >= upper[_ALPHA], "alpha at upper bound"),
         (alpha <= lower[_ALPHA], "alpha at lower bound"),
         (beta0 >= upper[_BETA0], "beta0 at upper bound"),
