@@ -138,7 +138,6 @@ STATUSES = ("accepted", "replaced", "rejected")
 
 _ALPHA, _BETA0, _K, _RREF = range(4)
 _MODEL_INPUTS = ("nee", "rg", "vpd", "factor", "weight")
-_JACOBIAN_INPUTS = ("light", "excess", "weight", "factor_weight")
 _ALPHA_START = 0.01          # µmol J-1, Lasslop et al. (2010) (m)
 _RREF_FLOOR_START = 0.1      # µmol m-2 s-1, keeps the start off the bound (our choice)
 # µmol m-2 s-1: a fitted Rref below this is the bound 0 reached to within the iteration's
@@ -843,12 +842,12 @@ def _levenberg_marquardt(theta, fixed, lower, upper, windows, mask, vpd0, max_it
         live &= ~finished
         if not live.any():
             break
-        if better.all():
-            gradient, normal = _normal_equations(data, trial_parts)
-        elif better.any():
-            moved = _take_rows({name: data[name] for name in _JACOBIAN_INPUTS}
-                               | trial_parts, better)
-            gradient[better], normal[better] = _normal_equations(moved, moved)
+        if better.any():
+            # computed for every row (cheaper than gathering the improved ones), kept where
+            # the step was accepted
+            new_gradient, new_normal = _normal_equations(data, trial_parts)
+            gradient = np.where(better[:, None], new_gradient, gradient)
+            normal = np.where(better[:, None, None], new_normal, normal)
         if live.sum() < 0.75 * len(live):
             # converged windows leave the arrays once a quarter of them has finished
             active, current, held, cost, damping = (active[live], current[live], held[live],
