@@ -494,3 +494,34 @@ def test_window_at_zero_takes_the_typical_relative_error_not_se_over_value():
     by_window = dict(zip(window, relative, strict=True))
     assert by_window[0] == pytest.approx(0.1) and by_window[1] == pytest.approx(0.2)
     assert by_window[2] == pytest.approx(0.15) and by_window[3] == pytest.approx(0.15)
+
+
+def test_structural_part_is_the_method_difference_the_parameter_parts_do_not_explain():
+    """For independent errors, Var(d) of d = daytime − nighttime is the sum of the
+    methods' variances (elementary statistics): with specific parts p_day, p_night and
+    a common structural s, E[d²] = p_day² + p_night² + 2 s². The structural part is
+    s = sqrt(max(d² − p_day² − p_night², 0) / 2), and 0 when the parts explain d."""
+    from fluxpart.uncertainty import UncertaintyInputs, period_uncertainty
+
+    index = pd.date_range("2021-06-01", periods=10 * 48, freq="30min")
+    n = len(index)
+    night = (index.hour < 5) | (index.hour >= 21)
+    reco_night, reco_day = np.full(n, 2.0), np.full(n, 2.6)
+    fluxes = pd.DataFrame({"nee": np.full(n, -1.0), "reco_nighttime": reco_night,
+                           "gpp_nighttime": reco_night + 1.0, "reco_daytime": reco_day,
+                           "gpp_daytime": np.where(night, 0.0, 3.1)}, index=index)
+    inputs = UncertaintyInputs(
+        measured=np.ones(n, dtype=bool), noise_sigma=np.zeros(n), is_night=night,
+        fluxes=fluxes, runs={}, gapfill_model=None, e0_delta=np.zeros(n),
+        night_window=np.zeros(n, dtype=int), night_relative_se=np.full(n, 0.02),
+        day_window=np.zeros(n, dtype=int), day_relative_se=np.full(n, 0.05))
+    out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
+    grams = 1800 * 12.011e-6        # µmol m-2 s-1 over 30 min -> g C m-2
+    difference = (reco_day.sum() - reco_night.sum()) * grams
+    p_night, p_day = 0.02 * reco_night.sum() * grams, 0.05 * reco_day.sum() * grams
+    assert out["reco_nighttime_uncertainty_parameters"] == pytest.approx(p_night)
+    assert out["reco_daytime_uncertainty_parameters"] == pytest.approx(p_day)
+    expected = np.sqrt(max(difference**2 - p_night**2 - p_day**2, 0.0) / 2.0)
+    assert expected > 0
+    assert out["reco_uncertainty_partitioning"] == pytest.approx(expected)
+    assert out["reco_nighttime_uncertainty_total"] == pytest.approx(np.hypot(p_night, expected))
