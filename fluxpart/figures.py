@@ -282,6 +282,18 @@ class Drawing:
         palette.save(buffer, format="PNG", compress_level=6)
         return buffer.getvalue()
 
+    def coloured_image(self, axis, grid, colormap, norm, extent):
+        """Draw a (day, time of day) grid as an image coloured here, once.
+
+        The same picture as ``imshow(grid.T, cmap=colormap, norm=norm)`` with nearest
+        interpolation (a missing value takes the colour map's transparent "bad"
+        colour), but matplotlib only scales RGBA bytes instead of normalising and
+        colouring the data again at every draw.
+        """
+        rgba = colormap(norm(np.ma.masked_invalid(grid.T)), bytes=True)
+        return axis.imshow(rgba, origin="lower", aspect="auto", extent=extent,
+                           interpolation="nearest")
+
     def nee_colormap(self):
         """Diverging NEE scale: dark blue uptake, near-white zero, dark red-brown release."""
         scale = self.colors.LinearSegmentedColormap.from_list(
@@ -708,8 +720,7 @@ def figure_fill_quality(drawing, written, interval) -> Figure:
         bad=(0.0, 0.0, 0.0, 0.0))
     norm = drawing.colors.BoundaryNorm(np.arange(len(names) + 1) - 0.5, len(names))
     _missing_background(top, grid)
-    top.imshow(grid.T, origin="lower", aspect="auto", extent=(start, start + n_days, 0.0, 24.0),
-               cmap=colormap, norm=norm, interpolation="nearest")
+    drawing.coloured_image(top, grid, colormap, norm, (start, start + n_days, 0.0, 24.0))
     bottom.set_xlim(start, start + n_days)
     top.set_ylabel("Time of day [h]")
     top.set_yticks([0, 6, 12, 18, 24])
@@ -775,9 +786,9 @@ def figure_heatmaps(drawing, written, interval) -> Figure:
             grid, first, n_days = _day_grid(series.index, series[column].to_numpy(), interval)
             start = drawing.dates.date2num(first.to_pydatetime())
             _missing_background(axis, grid)
-            image = axis.imshow(grid.T, origin="lower", aspect="auto",
-                                extent=(start, start + n_days, 0.0, 24.0), cmap=colormap,
-                                norm=norm, interpolation="nearest")
+            drawing.coloured_image(axis, grid, colormap, norm,
+                                   (start, start + n_days, 0.0, 24.0))
+            image = drawing.mpl.cm.ScalarMappable(norm=norm, cmap=colormap)
             axis.set_xlim(start, start + n_days)
             axis.set_ylim(0.0, 24.0)
         row_axes[0].set_ylabel("Time of day [h]")
@@ -852,20 +863,42 @@ def clock_sentence(manifest: dict) -> str:
     return "; ".join(parts)
 
 
-def _centre_offset_minutes(measured: pd.Series, potential: pd.Series):
+def _monthly_means(values, hour, month) -> dict:
+    """Mean of `values` per month and time of day: month -> (hours [h], means).
+
+    The same groups and means as ``Series(values).groupby(hour).mean()`` within
+    each month (every time of day that has a record, NaN where none of its values
+    is finite), from three bincounts instead of a groupby per month.
+    """
+    values = np.asarray(values, dtype=float)
+    hours, hour_code = np.unique(hour, return_inverse=True)
+    cells = 12 * len(hours)
+    key = (np.asarray(month) - 1) * len(hours) + hour_code
+    finite = np.isfinite(values)
+    present = np.bincount(key, minlength=cells).reshape(12, -1) > 0
+    counts = np.bincount(key[finite], minlength=cells).reshape(12, -1)
+    sums = np.bincount(key[finite], weights=values[finite], minlength=cells).reshape(12, -1)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        means = np.where(counts > 0, sums / np.maximum(counts, 1), np.nan)
+    return {number: (hours[present[number - 1]], means[number - 1][present[number - 1]])
+            for number in range(1, 13) if present[number - 1].any()}
+
+
+def _centre_offset_minutes(measured, potential):
     """Radiation-weighted mean time of day of measured minus potential radiation [min].
 
-    A descriptive check of the diurnal composites drawn (not the run's clock
-    estimate): clouds that favour one half of the day move it by some minutes,
-    a clock error moves it by the error in every month.
+    `measured` and `potential` are (hours, mean radiation) of one month. A
+    descriptive check of the diurnal composites drawn (not the run's clock
+    estimate): clouds that favour one half of the day move it by some minutes, a
+    clock error moves it by the error in every month.
     """
     centres = []
-    for course in (measured, potential):
-        weight = np.clip(course.to_numpy(dtype=float), 0.0, None)
+    for hours, course in (measured, potential):
+        weight = np.clip(np.asarray(course, dtype=float), 0.0, None)
         weight = np.where(np.isfinite(weight), weight, 0.0)
         if weight.sum() <= 0.0:
             return None
-        centres.append(float(np.sum(course.index.to_numpy() * weight) / weight.sum()))
+        centres.append(float(np.sum(hours * weight) / weight.sum()))
     return round(60.0 * (centres[0] - centres[1])) + 0.0  # + 0.0: no "-0"
 
 
@@ -884,20 +917,21 @@ def figure_clock(drawing, written, interval) -> Figure:
     rows = figure.subplots(nrows, 1, sharey=True, squeeze=False).ravel()
     has_potential = "potential_radiation" in series.columns
     rg = series["rg"].to_numpy(dtype=float) if "rg" in series.columns else np.full(len(hour), np.nan)
-    potential = (series["potential_radiation"].to_numpy(dtype=float) if has_potential else None)
+    rg_means = _monthly_means(rg, hour, month)
+    potential_means = (_monthly_means(series["potential_radiation"], hour, month)
+                       if has_potential else {})
     for row, axis in enumerate(rows):
         measured_x, measured_y, potential_x, potential_y = [], [], [], []
         for position, number in enumerate(months[row * ncols:(row + 1) * ncols]):
-            chosen = month == number
-            measured = pd.Series(rg[chosen]).groupby(hour[chosen]).mean()
-            measured_x += [position + measured.index.to_numpy() / 24.0, [np.nan]]
-            measured_y += [measured.to_numpy(), [np.nan]]
+            measured = rg_means[number]
+            measured_x += [position + measured[0] / 24.0, [np.nan]]
+            measured_y += [measured[1], [np.nan]]
             axis.text(position + 0.01, 1.02, _MONTHS[number - 1], fontsize=8.5, ha="left",
                       va="bottom", transform=axis.get_xaxis_transform())
             if has_potential:
-                reference = pd.Series(potential[chosen]).groupby(hour[chosen]).mean()
-                potential_x += [position + reference.index.to_numpy() / 24.0, [np.nan]]
-                potential_y += [reference.to_numpy(), [np.nan]]
+                reference = potential_means[number]
+                potential_x += [position + reference[0] / 24.0, [np.nan]]
+                potential_y += [reference[1], [np.nan]]
                 offset = _centre_offset_minutes(measured, reference)
                 if offset is not None:
                     axis.text(position + 0.02, 0.95, f"{offset:+.0f} min", fontsize=8,
@@ -976,13 +1010,12 @@ def _monthly_composite(series, column, hour, month, months):
 
     x is the month's position (0, 1, ...) plus the hour of day / 24.
     """
-    values = series[column].to_numpy(dtype=float)
+    means = _monthly_means(series[column], hour, month)
     xs, ys = [], []
     for position, number in enumerate(months):
-        rows = month == number
-        means = pd.Series(values[rows]).groupby(hour[rows]).mean()
-        xs += [position + means.index.to_numpy() / 24.0, [np.nan]]
-        ys += [means.to_numpy(), [np.nan]]
+        hours, values = means[number]
+        xs += [position + hours / 24.0, [np.nan]]
+        ys += [values, [np.nan]]
     return np.concatenate(xs), np.concatenate(ys)
 
 

@@ -603,6 +603,47 @@ def test_report_modules_import_no_pipeline_or_method_module():
     assert loaded <= allowed | {"report", "_validate"}, loaded
 
 
+def test_monthly_means_match_a_pandas_groupby(folder):
+    """Diurnal means per month (clock and diurnal figures) equal pandas' groupby means."""
+    series = read_written(folder["directory"]).timeseries
+    hour = figures._hour_of_day(series.index, 30)
+    month = series.index.month.to_numpy()
+    values = series["nee_measured"].to_numpy(dtype=float)  # with gaps: NaN skipped
+    means = figures._monthly_means(values, hour, month)
+    assert sorted(means) == sorted(set(month))
+    for number, (hours, mean) in means.items():
+        # Reference: pandas groupby mean (general library), which skips NaN.
+        chosen = month == number
+        reference = pd.Series(values[chosen]).groupby(hour[chosen]).mean()
+        assert np.array_equal(hours, reference.index.to_numpy())
+        assert np.allclose(mean, reference.to_numpy(), rtol=1e-12, atol=1e-12, equal_nan=True)
+
+
+def test_thinning_keeps_the_last_point_and_the_spacing():
+    """Curves are thinned to every k-th point plus the last (the period's sum)."""
+    for count in (0, 1, 1999, 2000, 2001, 17520, 175200):
+        keep = figures._thinned(count)
+        assert len(keep) <= 2001 and (count == 0 or keep[-1] == count - 1)
+        if count > 1:
+            steps = np.diff(keep[:-1])
+            assert keep[0] == 0 and (steps == -(-count // 2000)).all()
+    assert list(figures._thinned(5)) == [0, 1, 2, 3, 4]
+
+
+def test_figure_bytes_do_not_depend_on_the_text_cache(folder):
+    """A figure drawn after the rendered texts are dropped is byte-identical."""
+    written = read_written(folder["directory"])
+    drawing = figures.Drawing()
+    with drawing.mpl.rc_context():
+        drawing.mpl.rcdefaults()
+        drawing.mpl.rcParams.update(figures._RC)
+        warm = figures.figure_ustar(drawing, written).png
+        figures._TEXT_BITMAPS.clear()
+        figures._TEXT_EXTENTS.clear()
+        cold = figures.figure_ustar(drawing, written).png
+    assert cold == warm
+
+
 def test_page_is_light(folder):
     """One self-contained file well under 1 MB for a site-year (figures as palette PNG)."""
     assert folder["page"].stat().st_size < 1_000_000
