@@ -30,6 +30,8 @@ the u* detector
 record shorter than a year                annual budget (partial)             no
 many Rg records above potential           screening (clock evidence)          no
 radiation
+a variable repeating one value for days   input (stuck sensor)                no
+(Rg: with the sun up)
 ========================================  ==================================  =========
 """
 
@@ -61,6 +63,16 @@ _CONSTANT = {
     "vpd": ("daytime VPD limitation and gap filling", False),
 }
 _DISTINCT_VALUES = 3          # fewer distinct present values than this is "constant"
+# Stuck sensors (our choice): a variable repeating one value over this many days of
+# consecutive present records, other than values its air can hold for that long (VPD 0
+# and RH 100 in fog, soil at 0 °C while ice melts). A real sensor's last digit moves
+# within hours; a dead one repeats. Rg counts only with the sun up in
+# _STUCK_SUNLIT_RECORDS records of the run (potential radiation above _STUCK_SUN_UP
+# W m-2), so night zeros and polar night never count.
+_STUCK = {"nee": (1.0, ()), "rg": (1.0, ()), "ustar": (1.0, ()), "tair": (2.0, ()),
+          "tsoil": (2.0, (0.0,)), "vpd": (2.0, (0.0,)), "rh": (2.0, (100.0,))}
+_STUCK_SUN_UP = 200.0
+_STUCK_SUNLIT_RECORDS = 12
 _CHANGE_POINT_BINS = 50       # the change-point detector's u* bins (fluxpart.ustar default)
 _PER_CLASS = 3                # records per u* class or bin (fluxpart.ustar default)
 
@@ -120,6 +132,53 @@ def _constant(frame: pd.DataFrame, temperature: str) -> list:
                 f"{name} is constant ({present.size} values, all {shown}): a stuck or "
                 f"unconnected sensor, or a placeholder column; the stage needs a varying "
                 f"{name}"), fatal))
+    return findings
+
+
+def _runs(values: np.ndarray):
+    """Runs of equal consecutive present values (gaps skipped): their present positions."""
+    present = np.flatnonzero(np.isfinite(values))
+    if present.size < 2:
+        return []
+    kept = values[present]
+    breaks = np.flatnonzero(kept[1:] != kept[:-1]) + 1
+    starts = np.concatenate([[0], breaks])
+    ends = np.concatenate([breaks, [kept.size]])
+    return [present[a:b] for a, b in zip(starts, ends, strict=True) if b - a > 1]
+
+
+def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
+    """Sensors that repeat one value for days: their records enter as measured."""
+    index = pd.DatetimeIndex(frame.index)
+    per_day = 1440.0 / interval_minutes
+    sun_up = np.asarray(potential, dtype=float) > _STUCK_SUN_UP
+    findings = []
+    for name, (days_needed, natural) in _STUCK.items():
+        if name not in frame.columns:
+            continue
+        values = pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=float)
+        stuck = []
+        for positions in _runs(values):
+            value = values[positions[0]]
+            if value in natural or positions.size < days_needed * per_day:
+                continue
+            sunlit = int(sun_up[positions].sum())
+            if name == "rg" and sunlit < _STUCK_SUNLIT_RECORDS:
+                continue
+            stuck.append((positions.size, int(positions[0]), int(positions[-1]), value, sunlit))
+        if not stuck:
+            continue
+        length, first, last, value, sunlit = max(stuck)
+        span = (index[last] - index[first]) / pd.Timedelta(days=1) + interval_minutes / 1440
+        sun = f", {sunlit} of them with the sun up" if name == "rg" else ""
+        more = (f"; {len(stuck)} such runs, {sum(run[0] for run in stuck)} records in all"
+                if len(stuck) > 1 else "")
+        findings.append(Finding(f"input ({name})", (
+            f"{name} stays at exactly {value:g} for {span:.1f} days "
+            f"({index[first]:%Y-%m-%d %H:%M} .. {index[last]:%Y-%m-%d %H:%M}, {length} "
+            f"records{sun}){more}: a stuck, dead or disconnected sensor (or a placeholder "
+            "value) reads like this, and the values would enter as measured; mark them "
+            "missing in a copy of the file"), False))
     return findings
 
 
@@ -239,6 +298,8 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     findings = _constant(frame, temperature_name)
     if len(index) == 0:
         return [Finding("whole record", "no records", True)]
+    if not findings:                     # a wholly constant column is named above
+        findings += _stuck(frame, potential, interval_minutes)
     days = ((index - index[0].normalize()) / pd.Timedelta(days=1)).to_numpy()
     nee = screened["nee"].to_numpy(dtype=float)
     temperature = (screened[temperature_name].to_numpy(dtype=float)

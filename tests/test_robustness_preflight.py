@@ -1,0 +1,72 @@
+"""Stuck sensors: a variable repeating one value for days enters the pipeline as measured.
+
+Fact of the trade: a working sensor's last digit moves within hours (turbulence,
+clouds, the diurnal cycle); a dead, frozen or disconnected one repeats a value (0 for
+a pyranometer). Before this check a pyranometer reading 0 for two summer months of
+the invented demo site passed `check` clean and moved annual NEE by -81 g C m-2.
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart import demo
+from fluxpart.cli import main
+from fluxpart.io import _potential
+from fluxpart.preflight import _stuck
+
+
+@pytest.fixture(scope="module")
+def year():
+    frame, _ = demo.site_year(0)
+    site = demo.SITE
+    return frame, site, _potential(frame.index, site, 30)
+
+
+def test_correct_demo_year_has_no_stuck_sensor(year):
+    frame, _, potential = year
+    assert _stuck(frame, potential, 30) == []
+
+
+def test_dead_pyranometer_found_with_its_period(year):
+    frame, _, potential = year
+    broken = frame.copy()
+    days = (broken.index >= "2021-06-01") & (broken.index < "2021-06-11")
+    broken.loc[days, "rg"] = 0.0
+    findings = _stuck(broken, potential, 30)
+    assert len(findings) == 1 and not findings[0].fatal
+    assert findings[0].stage == "input (rg)"
+    assert "exactly 0 for" in findings[0].message and "2021-06-" in findings[0].message
+
+
+@pytest.mark.parametrize("hours, found", [(20, False), (60, True)])
+def test_stuck_air_temperature_needs_two_days(year, hours, found):
+    frame, _, potential = year
+    broken = frame.copy()
+    start = pd.Timestamp("2021-08-03")
+    stuck = (broken.index >= start) & (broken.index < start + pd.Timedelta(hours=hours))
+    broken.loc[stuck, "tair"] = 17.25
+    assert bool(_stuck(broken, potential, 30)) is found
+
+
+def test_polar_night_zero_rg_is_not_stuck(year):
+    """Rg = 0 for weeks where the sun never rises (potential radiation 0) is correct."""
+    frame, _, potential = year
+    dark = frame.copy()
+    dark["rg"] = np.where(np.asarray(potential) > 0, dark["rg"], 0.0)
+    night_only = np.asarray(potential) <= 0
+    assert _stuck(dark.assign(rg=np.where(night_only, 0.0, np.nan)), potential, 30) == []
+
+
+def test_check_lists_stuck_sensor(tmp_path, capsys):
+    config = demo.write_example(tmp_path)
+    data = config.with_suffix(".csv")
+    lines = data.read_text().splitlines()
+    column = lines[0].split(",").index("solar_down")
+    for row in range(1 + 48 * 160, 1 + 48 * 170):         # ten days in June
+        cells = lines[row].split(",")
+        cells[column] = "0.0"
+        lines[row] = ",".join(cells)
+    data.write_text("\n".join(lines) + "\n")
+    assert main(["check", str(config)]) == 1
+    assert "input (rg): rg stays at exactly 0" in capsys.readouterr().out
