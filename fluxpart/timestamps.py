@@ -256,7 +256,10 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     if failed.any():
         first = int(np.flatnonzero(failed)[0])
         hint = ""
-        if first == 0 and not any(ch.isdigit() for ch in text.iloc[0][:4]):
+        if text.iloc[first] == " ".join(time_columns):
+            hint = ("; the header line repeats there (files joined end to end?): remove the "
+                    "repeated header lines, or list the files in [input] path instead")
+        elif first == 0 and not any(ch.isdigit() for ch in text.iloc[0][:4]):
             hint = ("; if the file has a units line under the header, set [input] "
                     "rows_after_header = 1")
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:

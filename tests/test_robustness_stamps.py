@@ -104,3 +104,14 @@ def test_stamps_in_utc_with_time_zone_utc():
     with pytest.raises(ConfigError, match="POSIX sign"):
         parse_stamps(text, "%Y-%m-%d %H:%M", time_columns=("stamp",), source="t.dat",
                      lines=np.arange(2, 6), utc_offset=1.0, time_zone="Etc/GMT+1")
+
+
+def test_repeated_header_line_is_named():
+    """Files joined end to end repeat the header: the stamp that fails is the column name."""
+    import pytest
+
+    from fluxpart.errors import TimestampError
+
+    text = ["202101010030", "202101010100", "stamp", "202101010130"]
+    with pytest.raises(TimestampError, match=r"line 4 .*header line repeats"):
+        _parse(text, "%Y%m%d%H%M", columns=("stamp",))
