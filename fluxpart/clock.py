@@ -191,6 +191,35 @@ def _day_slot_matrix(index: pd.DatetimeIndex, values: np.ndarray, interval_minut
     return matrix, days
 
 
+def _lagged_potential(index: pd.DatetimeIndex, position, interval_minutes: float,
+                      lags) -> dict:
+    """Potential radiation of every record with its stamps moved back by each lag [W m-2].
+
+    ``potential_radiation(index - lag)`` for each lag [min]. It is computed record by
+    record, so on a regular record a lag of minus j sub-steps gives the values of the
+    lag of 6 - j sub-steps one record later: those are taken from one extra record
+    computed at the end instead of computing them again (the stamps are checked to be
+    the same to the nanosecond, so the values are the same).
+    """
+    interval = pd.Timedelta(minutes=interval_minutes)
+    moved = {float(lag): pd.Timedelta(minutes=float(lag)) for lag in lags}
+    extended = index.append(pd.DatetimeIndex([index[-1] + interval]))
+    regular = len(index) > 1 and bool(((extended[1:] - extended[:-1]) == interval).all())
+    out, computed = {}, {}
+    for lag in sorted(moved, key=lambda value: (value < 0, abs(value))):
+        partner = next((other for other, values in computed.items()
+                        if moved[other] - interval == moved[lag]), None)
+        if regular and partner is not None:
+            out[lag] = computed[partner][1:]
+        elif regular:
+            computed[lag] = potential_radiation(extended - moved[lag], *position,
+                                                interval_minutes)
+            out[lag] = computed[lag][:-1]
+        else:
+            out[lag] = potential_radiation(index - moved[lag], *position, interval_minutes)
+    return out
+
+
 def _correlation(envelope: np.ndarray, model: np.ndarray) -> float:
     ok = np.isfinite(envelope) & np.isfinite(model)
     if ok.sum() < 4:
@@ -273,17 +302,16 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
         matrix[layout] = values
         return matrix
 
-    potential = potential_radiation(index, *position, interval)
+    step = interval / 6.0
+    fine_lags = np.arange(-6, 7) * step             # sub-record lags [min]
+    shifted = _lagged_potential(index, position, interval, fine_lags)
+    potential = shifted[0.0]
     potential_matrix = as_matrix(potential)
     present = np.isfinite(rg_matrix)
     good_day = present.sum(axis=1) >= 0.8 * slots
     months = days.to_period("M")
 
-    step = interval / 6.0
-    fine_lags = np.arange(-6, 7) * step             # sub-record lags [min]
-    fine = {lag: as_matrix(potential_radiation(
-        index - pd.Timedelta(minutes=float(lag)), *position, interval))
-        for lag in fine_lags if lag != 0.0}
+    fine = {lag: as_matrix(values) for lag, values in shifted.items() if lag != 0.0}
     fine[0.0] = potential_matrix
     flipped_matrix = as_matrix(potential_radiation(
         index, -latitude, longitude, utc_offset, interval))

@@ -201,3 +201,20 @@ def test_clock_off_for_part_of_the_record_is_named():
     assert verdict.status == "shifted"
     assert "from 2022-03 to 2022-12" in verdict.problems[0]
 
+
+
+@pytest.mark.parametrize("minutes", [10, 20, 30, 60])
+def test_lagged_potential_equals_the_direct_computation(minutes):
+    """The lags reused from one record later equal potential radiation computed at the
+    moved stamps, to the last bit; a record with gaps is computed directly."""
+    from fluxpart.clock import _lagged_potential
+    from fluxpart.solar import potential_radiation
+
+    regular = pd.date_range("2021-03-01", periods=2000, freq=f"{minutes}min")
+    lags = np.arange(-6, 7) * (minutes / 6.0)
+    for index in (regular, regular.delete([5, 6, 100])):
+        got = _lagged_potential(index, (-33.9, 18.4, 2.0), float(minutes), lags)
+        for lag in lags:
+            expected = potential_radiation(index - pd.Timedelta(minutes=float(lag)), -33.9,
+                                           18.4, 2.0, float(minutes))
+            np.testing.assert_array_equal(got[float(lag)], expected)
