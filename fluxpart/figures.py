@@ -22,6 +22,7 @@ colour-blind-safe palette with distinct line styles, so they also read in grey.
 
 from __future__ import annotations
 
+import gc
 import io
 import re
 import textwrap
@@ -1418,10 +1419,20 @@ def draw_figures(written: Written, progress=None) -> list[Figure]:
         lambda: figure_light_response(drawing, written),
     )
     figures = []
-    with drawing.mpl.rc_context():
-        drawing.mpl.rcdefaults()
-        drawing.mpl.rcParams.update(_RC)
-        for paint in painters:
-            figures.append(paint())
-            tick()
+    # The cyclic garbage collector pauses while the figures are drawn: matplotlib makes
+    # some 10^5 short-lived objects per figure, and the collector's full passes over
+    # every live object (the imported modules' included) cost 0.2-0.4 s of a 2 s report.
+    # The figures' reference cycles are freed when it resumes (peak RSS ~25 MB higher).
+    collecting = gc.isenabled()
+    gc.disable()
+    try:
+        with drawing.mpl.rc_context():
+            drawing.mpl.rcdefaults()
+            drawing.mpl.rcParams.update(_RC)
+            for paint in painters:
+                figures.append(paint())
+                tick()
+    finally:
+        if collecting:
+            gc.enable()
     return figures
