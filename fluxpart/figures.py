@@ -11,8 +11,18 @@ present and named as absent otherwise.
 matplotlib (the ``report`` extra) is used on the Agg canvas without pyplot and
 without a layout engine: every figure has fixed margins, which keeps drawing
 fast (no tight or constrained layout passes). Figures are written as 8-bit
-palette PNG files without timestamp or software tag, so the same folder gives
-the same bytes.
+palette PNG files (zlib level 6) without timestamp or software tag, so the same
+folder gives the same bytes.
+
+Speed (issue 17): the report is ten figures, so each has a budget of about a tenth
+of the command, and matplotlib's cost is mostly per artist. Figures use few axes
+(the clock check draws one axes per row of months), at most 4-6 ticks on value
+axes and none on the inner panels of a column (a tick is five artists), texts
+rendered once into bitmaps shared by all figures (matplotlib 3.11 renders every
+text glyph by glyph at each draw; see :func:`_text_cache_canvas`), images
+coloured once into RGBA bytes, curves denser than the pixels thinned
+deterministically (:func:`_thinned`: every k-th point and the last), and the
+garbage collector paused while drawing.
 
 Colour scales: NEE is drawn on a diverging scale (dark blue strong uptake,
 near white zero, dark red-brown strong release) and every missing cell is a
