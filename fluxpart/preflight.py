@@ -32,6 +32,9 @@ many Rg records above potential           screening (clock evidence)          no
 radiation
 a variable repeating one value for days   input (stuck sensor)                no
 (Rg: with the sun up)
+Rg above the night threshold in most      night mask                          where the
+records with the sun down                                                     nighttime
+                                                                              stages fail
 ========================================  ==================================  =========
 """
 
@@ -72,6 +75,11 @@ _DISTINCT_VALUES = 3          # fewer distinct present values than this is "cons
 _STUCK = {"nee": (1.0, ()), "rg": (1.0, ()), "ustar": (1.0, ()), "tair": (2.0, ()),
           "tsoil": (2.0, (0.0,)), "vpd": (2.0, (0.0,)), "rh": (2.0, (100.0,))}
 _STUCK_SUN_UP = 200.0
+# Night-mask check (our choice): with the sun below the horizon a pyranometer reads
+# about 0 (a few W m-2 of thermal offset, negative or positive); Rg at or above the
+# night threshold in more than half of at least a day of such records is an offset.
+_DARK_ABOVE_SHARE = 0.5
+_DARK_MIN_RECORDS = 48
 _STUCK_SUNLIT_RECORDS = 12
 _CHANGE_POINT_BINS = 50       # the change-point detector's u* bins (fluxpart.ustar default)
 _PER_CLASS = 3                # records per u* class or bin (fluxpart.ustar default)
@@ -180,6 +188,26 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
             "value) reads like this, and the values would enter as measured; mark them "
             "missing in a copy of the file"), False))
     return findings
+
+
+def _dark_rg(frame: pd.DataFrame, potential, config) -> list:
+    """Rg that stays above the night threshold while the sun is down (an offset)."""
+    if "rg" not in frame.columns:
+        return []
+    rg = pd.to_numeric(frame["rg"], errors="coerce").to_numpy(dtype=float)
+    dark = (np.asarray(potential, dtype=float) <= 0.0) & np.isfinite(rg)
+    if dark.sum() < _DARK_MIN_RECORDS:
+        return []
+    above = rg[dark] >= config.night_rg_threshold
+    if above.mean() <= _DARK_ABOVE_SHARE:
+        return []
+    return [Finding("night mask", (
+        f"Rg is at or above night_rg_threshold = {config.night_rg_threshold:g} W m-2 in "
+        f"{above.mean():.0%} of the {int(dark.sum())} records with the sun below the horizon "
+        f"(median {float(np.median(rg[dark])):.3g} W m-2), so few records count as night: a "
+        "pyranometer offset, a mislabelled Rg column or a wrong [site] position; correct the "
+        "offset in a copy of the file, or raise [processing] night_rg_threshold above it"),
+        False)]
 
 
 def _e0(days, index, usable, temperature, config) -> list:
@@ -349,4 +377,8 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
             f"ones) exceed the potential radiation, mostly at {busiest}: sunlight where the "
             "site's settings put none is clock or site-geometry evidence (see the clock "
             "check); these records are rejected and refilled"), False))
-    return sorted(findings, key=lambda f: not f.fatal)
+    dark = _dark_rg(frame, potential, config)
+    if dark and any(f.fatal and f.stage.startswith("nighttime") for f in findings):
+        # the cause of the nighttime stages' failure: named first in run's error
+        dark = [Finding(dark[0].stage, dark[0].message, True)]
+    return sorted(dark + findings, key=lambda f: not f.fatal)

@@ -70,3 +70,34 @@ def test_check_lists_stuck_sensor(tmp_path, capsys):
     data.write_text("\n".join(lines) + "\n")
     assert main(["check", str(config)]) == 1
     assert "input (rg): rg stays at exactly 0" in capsys.readouterr().out
+
+
+def test_pyranometer_offset_named_as_cause_of_night_failure(year):
+    """With the sun below the horizon a pyranometer reads about 0 W m-2 (a thermal offset
+    of a few W m-2; fact of the trade). An offset of +15 W m-2 leaves no record below the
+    10 W m-2 night threshold: the night mask is named, before the nighttime stages'
+    'no night records', as the cause (fatal only because those stages fail)."""
+    from fluxpart import Config
+    from fluxpart.preflight import _dark_rg
+
+    frame, _, potential = year
+    assert _dark_rg(frame, potential, Config()) == []
+    findings = _dark_rg(frame.assign(rg=frame["rg"] + 15.0), potential, Config())
+    assert len(findings) == 1 and findings[0].stage == "night mask"
+    assert "night_rg_threshold = 10" in findings[0].message
+
+
+def test_run_error_starts_with_the_night_mask(tmp_path, capsys):
+    config = demo.write_example(tmp_path)
+    data = config.with_suffix(".csv")
+    lines = data.read_text().splitlines()
+    column = lines[0].split(",").index("solar_down")
+    for row in range(1, len(lines)):
+        cells = lines[row].split(",")
+        if cells[column] != "-9999":
+            cells[column] = f"{float(cells[column]) + 15:.1f}"
+        lines[row] = ",".join(cells)
+    data.write_text("\n".join(lines) + "\n")
+    assert main(["run", str(config), "--out", str(tmp_path / "out"), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: night mask: Rg is at or above")
