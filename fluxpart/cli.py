@@ -145,6 +145,21 @@ def _command_report(args) -> int:
     return command_report(args)
 
 
+def _command_export(args) -> int:
+    """``fluxpart export``: refuse a NetCDF file inside a result folder."""
+    from .errors import OutputError
+    from .export import command_export
+
+    target = Path(args.netcdf).absolute().resolve()
+    enclosing = _enclosing_result(target.parent)
+    if enclosing is not None and enclosing / "report" not in target.parents:
+        raise OutputError(f"--netcdf {args.netcdf!r} is inside the result folder "
+                          f"{str(enclosing)!r}, which must hold only the files its manifest "
+                          "lists (a file there would make load, verify and diff refuse it); "
+                          "write it outside the folder")
+    return command_export(args)
+
+
 def _check_output_folder(out: Path) -> None:
     """Fail before any computation where the result folder `out` cannot be written."""
     import tempfile
@@ -332,7 +347,7 @@ def _parser() -> argparse.ArgumentParser:
     export.add_argument("directory", help="result folder written by run or demo")
     export.add_argument("--netcdf", required=True, metavar="FILE",
                         help="NetCDF file to write (half-hourly and daily series)")
-    export.set_defaults(handler=_lazy("export", "command_export"))
+    export.set_defaults(handler=_command_export)
     return parser
 
 

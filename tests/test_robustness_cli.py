@@ -55,3 +55,13 @@ def test_ctrl_c_is_one_line_not_a_traceback(tmp_path, capsys, monkeypatch):
     err = capsys.readouterr().err.strip().splitlines()
     assert status == 130
     assert len(err) == 1 and err[0].startswith("error: interrupted")
+
+
+def test_export_into_result_folder_refused(tmp_path, capsys):
+    """export --netcdf DIR/site.nc would add an unlisted file, so load/verify/diff refuse DIR."""
+    result = _result_folder(tmp_path / "out")
+    status = main(["export", str(result), "--netcdf", str(result / "site.nc")])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert status == 2
+    assert len(err) == 1 and err[0].startswith("error: --netcdf")
+    assert not (result / "site.nc").exists()
