@@ -1201,7 +1201,10 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         "records_read": len(raw), "duplicate_rows": int(duplicate.sum()),
         "missing_cells": missing_cells, "nonfinite_cells": nonfinite,
         "conversions": {"hour_24": parsed.hour_24, "utc_offset": parsed.offset_converted,
-                        "daylight_saving": parsed.daylight_saving},
+                        "daylight_saving": parsed.daylight_saving,
+                        # only where it happened: earlier manifests have no such key
+                        **({"rounded_to_minute": parsed.rounded_to_minute}
+                           if parsed.rounded_to_minute else {})},
     }
 
 
@@ -1414,6 +1417,9 @@ def _conversion_text(conversions: dict) -> str:
     if conversions.get("utc_offset"):
         parts.append(f"{conversions['utc_offset']} stamp(s) with a UTC offset to local "
                      "standard time")
+    if conversions.get("rounded_to_minute"):
+        parts.append(f"{conversions['rounded_to_minute']} stamp(s) within seconds of a whole "
+                     "minute rounded to it")
     if conversions.get("time_zone"):
         parts.append(f"civil time of {conversions['time_zone']}: "
                      f"{conversions.get('daylight_saving', 0)} daylight-saving stamp(s) moved "

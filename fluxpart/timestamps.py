@@ -73,12 +73,16 @@ class ParsedStamps:
         Stamps that carried a UTC offset and were converted.
     daylight_saving : int
         Stamps read as daylight-saving civil time and moved back to standard time.
+    rounded_to_minute : int
+        Stamps a few seconds off a whole minute (logger clock jitter, or a
+        "minus one second" end stamp) rounded to it.
     """
 
     stamps: pd.DatetimeIndex
     hour_24: int = 0
     offset_converted: int = 0
     daylight_saving: int = 0
+    rounded_to_minute: int = 0
 
 
 def join_time_columns(raw: pd.DataFrame, time_columns: tuple) -> pd.Series:
@@ -140,6 +144,24 @@ def _pad_clock_fields(text: pd.Series, time_format: str) -> pd.Series:
     for i in range(1, len(fields)):
         joined = joined + " " + parts[i]
     return joined
+
+
+#: Largest distance of a stamp from a whole minute that is read as clock jitter and
+#: rounded [s]; our choice: loggers write end stamps one second early (23:59:59) or
+#: drift by seconds, while a stamp further off is no 30- or 60-minute record.
+JITTER_SECONDS = 10.0
+
+
+def _round_to_minute(index: pd.DatetimeIndex) -> tuple[pd.DatetimeIndex, int]:
+    """Round stamps to the whole minute where every stamp is within JITTER_SECONDS of one."""
+    if len(index) == 0:
+        return index, 0
+    rounded = index.round("min")
+    off = np.abs(np.asarray((index - rounded) / pd.Timedelta(seconds=1), dtype=float))
+    moved = int(np.count_nonzero(off > 0))
+    if moved == 0 or np.nanmax(off) > JITTER_SECONDS:
+        return index, 0
+    return rounded, moved
 
 
 def _carries_offset(text: pd.Series, time_format: str) -> bool:
@@ -272,6 +294,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             f"{text.iloc[first]!r}, which does not match time_format = {time_format!r}; "
             f"{int(failed.sum())} stamp(s) fail to parse{hint}")
     index = pd.DatetimeIndex(parsed)
+    index, rounded = _round_to_minute(index)
     offset_converted = 0
     if index.tz is not None:
         if utc_offset is None:
@@ -286,7 +309,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         index, daylight = _civil_to_standard(index, text, time_zone, utc_offset, time_columns,
                                              source, lines)
     return ParsedStamps(stamps=pd.DatetimeIndex(index), hour_24=int(is_24.sum()),
-                        offset_converted=offset_converted, daylight_saving=daylight)
+                        offset_converted=offset_converted, daylight_saving=daylight,
+                        rounded_to_minute=rounded)
 
 
 def check_time_zone(time_zone, utc_offset: float, when=None) -> str:

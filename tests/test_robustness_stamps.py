@@ -115,3 +115,27 @@ def test_repeated_header_line_is_named():
     text = ["202101010030", "202101010100", "stamp", "202101010130"]
     with pytest.raises(TimestampError, match=r"line 4 .*header line repeats"):
         _parse(text, "%Y%m%d%H%M", columns=("stamp",))
+
+
+def test_seconds_jitter_rounded_to_the_minute():
+    """End stamps written one second early (00:29:59) or a few seconds off are rounded to
+    the whole minute (calendar arithmetic of Python's datetime), and counted."""
+    truth = [datetime(2021, 1, 1, 0, 30) + timedelta(minutes=30 * k) for k in range(48)]
+    early = [t - timedelta(seconds=1) for t in truth]
+    jitter = [t + timedelta(seconds=(k % 5) - 2) for k, t in enumerate(truth)]
+    for stamps_in in (early, jitter):
+        text = pd.Series([t.strftime("%Y-%m-%d %H:%M:%S") for t in stamps_in])
+        parsed = parse_stamps(text, "%Y-%m-%d %H:%M:%S", time_columns=("stamp",),
+                              source="t.dat", lines=np.arange(2, 50))
+        assert list(parsed.stamps) == [pd.Timestamp(t) for t in truth]
+        assert parsed.rounded_to_minute == sum(t.second != 0 for t in stamps_in)
+
+
+def test_stamps_far_from_a_minute_not_rounded():
+    """A stamp 20 s off is no clock jitter of a 30-minute record: left for the spacing check."""
+    stamps_in = [datetime(2021, 1, 1, 0, 30, 20), datetime(2021, 1, 1, 1, 0)]
+    text = pd.Series([t.strftime("%Y-%m-%d %H:%M:%S") for t in stamps_in])
+    parsed = parse_stamps(text, "%Y-%m-%d %H:%M:%S", time_columns=("stamp",), source="t.dat",
+                          lines=np.arange(2, 4))
+    assert parsed.rounded_to_minute == 0
+    assert list(parsed.stamps) == [pd.Timestamp(t) for t in stamps_in]
