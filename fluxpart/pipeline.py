@@ -730,7 +730,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                     "respiration_driver": ({"setting": temperature} if choice is None
                                            else choice.to_dict()),
                     "uncertainty": {"confidence": uncertainty.CONFIDENCE,
-                                    "not_quantified": list(uncertainty.NOT_QUANTIFIED)}})
+                                    "not_quantified": list(uncertainty.NOT_QUANTIFIED),
+                                    "checked": uncertainty.CALIBRATION_CHECK}})
 
 
 def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night,

@@ -666,6 +666,13 @@ def _provenance(manifest: dict) -> str:
     if "clock" in provenance:
         parts.append(f'<tr><th scope="row">clock check</th><td>{_e(provenance["clock"])}'
                      "</td></tr>")
+    stated = provenance.get("uncertainty")
+    if isinstance(stated, dict):
+        left_out = "; ".join(str(item) for item in stated.get("not_quantified", []))
+        checked = f"<br>Checked: {_e(stated['checked'])}." if stated.get("checked") else ""
+        parts.append(f'<tr><th scope="row">stated intervals</th><td>'
+                     f"{_e(round(100 * float(stated.get('confidence', 0.95))))} %; not included: "
+                     f"{_e(left_out)}.{checked}</td></tr>")
     parts.append(f'<tr><th scope="row">seed</th><td>{_e(manifest.get("seed", ""))}</td></tr>')
     versions = manifest.get("versions", {})
     parts.append('<tr><th scope="row">versions</th><td>' + _e(", ".join(

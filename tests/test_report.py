@@ -684,3 +684,15 @@ def test_a_folder_that_does_not_match_its_manifest_is_refused(folder, tmp_path, 
     assert main(["report", str(copy), "--quiet"]) == 2
     assert "annual.parquet" in capsys.readouterr().err
     assert not (copy / "report").exists()
+
+
+def test_page_states_what_the_intervals_leave_out_and_how_they_were_checked(folder):
+    """The manifest's record of the stated intervals (level, what is not included, the
+    coverage check) is on the page as written, not recomputed."""
+    text = folder["text"]
+    stated = read_manifest(folder["directory"])["provenance"]["uncertainty"]
+    assert stated["confidence"] == 0.95 and stated["checked"]
+    assert "stated intervals</th><td>95 %; not included:" in text
+    for item in stated["not_quantified"]:
+        assert html.escape(item) in text
+    assert html.escape(stated["checked"]) in text
