@@ -181,11 +181,17 @@ UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
                                         "errors), grams of carbon"),
     "nee_uncertainty_gapfill": (CARBON, "1 sigma of the NEE sum (carbon) from gap filling, "
                                 "scored on artificial gaps of the site's own gap lengths: "
-                                "independent and within-gap correlated parts plus the systematic "
-                                "fill bias (Richardson & Hollinger 2007)"),
+                                "independent and within-gap correlated parts (Richardson & "
+                                "Hollinger 2007) plus the larger of the systematic fill bias and "
+                                "its standard error"),
     "nee_uncertainty_gapfill_bias": (CARBON, "systematic gap-filling bias of the NEE sum "
                                      "(carbon) on artificial gaps (fill minus measured; not "
                                      "subtracted from nee, counted in nee_uncertainty_gapfill)"),
+    "nee_uncertainty_gapfill_bias_se": (CARBON, "standard error of nee_uncertainty_gapfill_bias "
+                                        "(carbon) from the spread of the artificial gaps' "
+                                        "errors, as if the period's filled records shared one "
+                                        "error; nee_uncertainty_gapfill counts the larger of "
+                                        "it and the bias"),
     "gpp_nighttime_uncertainty_random": (CARBON, "1 sigma: random error of nighttime GPP "
                                          "(GPP = Reco - NEE): random error of the NEE sum over "
                                          "the measured records outside the night, grams of "

@@ -525,3 +525,33 @@ def test_structural_part_is_the_method_difference_the_parameter_parts_do_not_exp
     assert expected > 0
     assert out["reco_uncertainty_partitioning"] == pytest.approx(expected)
     assert out["reco_nighttime_uncertainty_total"] == pytest.approx(np.hypot(p_night, expected))
+
+
+@pytest.mark.parametrize("bias, bias_se", [(0.02, 0.005), (0.005, 0.02)])
+def test_fill_bias_part_is_the_larger_of_the_bias_and_its_standard_error(bias, bias_se):
+    """A bias estimate B with standard error S has E[B²] = (Nμ)² + S² (elementary
+    statistics), and the part to state, (Nμ)² + S², is at least S²; the gap-filling
+    part is therefore max(B², S²) over the filled records, not B² + S²."""
+    from fluxpart.uncertainty import UncertaintyInputs, period_uncertainty
+
+    index = pd.date_range("2021-06-01", periods=4 * 48, freq="30min")
+    n = len(index)
+    measured = np.ones(n, dtype=bool)
+    measured[10:30] = measured[100:103] = False                    # 23 filled records
+    model = pd.DataFrame({"bias": [bias, bias], "bias_se": [bias_se, bias_se],
+                          "independent_variance": [0.0, 0.0], "correlated_variance": [0.0, 0.0]},
+                         index=pd.Index(["night", "day"], name="record_class"))
+    zeros = np.zeros(n)
+    fluxes = pd.DataFrame({name: np.ones(n) for name in (
+        "nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")}, index=index)
+    inputs = UncertaintyInputs(
+        measured=measured, noise_sigma=zeros, is_night=index.hour < 6, fluxes=fluxes, runs={},
+        gapfill_model=model, e0_delta=zeros, night_window=np.zeros(n, dtype=int),
+        night_relative_se=np.full(n, np.nan), day_window=np.zeros(n, dtype=int),
+        day_relative_se=np.full(n, np.nan))
+    out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
+    grams = 1800 * 12.011e-6
+    big, small = 23 * bias * grams, 23 * bias_se * grams
+    assert out["nee_uncertainty_gapfill_bias"] == pytest.approx(big)
+    assert out["nee_uncertainty_gapfill_bias_se"] == pytest.approx(small)
+    assert out["nee_uncertainty_gapfill"] == pytest.approx(max(big, small))
