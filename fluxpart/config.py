@@ -474,3 +474,7 @@ def _check(config: Config) -> None:
                                            or config.e0_fallback <= 0):
         raise ConfigError(f"[processing] e0_fallback = {config.e0_fallback!r}: expected a "
                           "positive number of kelvin, or leave it out")
+    if (config.e0_fallback is not None and isinstance(low_high, tuple)
+            and not low_high[0] <= config.e0_fallback <= low_high[1]):
+        raise ConfigError(f"[processing] e0_fallback = {config.e0_fallback!r}: outside e0_bounds "
+                          f"{list(low_high)} K, the range a fitted E0 must lie in")

@@ -99,6 +99,7 @@ def test_from_toml_missing_and_invalid(tmp_path):
     ({"e0_bounds": (450.0, 30.0)}, r"e0_bounds.*low < high"),
     ({"e0_bounds": (30.0,)}, r"e0_bounds"),
     ({"e0_fallback": -5.0}, r"e0_fallback = -5.0"),
+    ({"e0_fallback": 1e9}, r"e0_fallback = 1000000000.0: outside e0_bounds \[30.0, 450.0\]"),
     ({"ustar_method": "movingpoint"}, r"ustar_method = 'movingpoint'.*'moving_point'"),
     ({"ustar_bootstrap_draws": -1}, r"ustar_bootstrap_draws = -1"),
     ({"ustar_scenarios": (5, 42)}, r"ustar_scenarios = \(5, 42\).*percentiles"),
