@@ -309,6 +309,8 @@ def _parser() -> argparse.ArgumentParser:
                         "place, else the copy of its text in the manifest)")
     verify.add_argument("--exact", action="store_true",
                         help="demand bit identity: rounding differences exit 1")
+    verify.add_argument("--quiet", action="store_true",
+                        help="print only the verdict and the caution (same exit status)")
     verify.set_defaults(handler=_lazy("verify", "command_verify"))
 
     diff = commands.add_parser(

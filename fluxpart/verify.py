@@ -757,7 +757,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
 
 
 def command_verify(args) -> int:
-    """``fluxpart verify DIR [--input FILE] [--config FILE] [--exact]``.
+    """``fluxpart verify DIR [--input FILE] [--config FILE] [--exact] [--quiet]``.
 
     Returns
     -------
@@ -771,6 +771,8 @@ def command_verify(args) -> int:
     report = verify(args.directory, input_path=getattr(args, "input", None),
                     config_path=getattr(args, "config", None),
                     exact=bool(getattr(args, "exact", False)))
-    print(report.format())
+    lines = report.format().splitlines()
+    # --quiet: the verdict and the caution, without the per-column detail
+    print("\n".join([lines[0], lines[-1]] if getattr(args, "quiet", False) else lines))
     return report.exit_code
 

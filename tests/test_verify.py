@@ -76,6 +76,14 @@ def test_untouched_result_is_bit_identical(bundle, capsys):
     assert "not a certified credit" in out           # the caution of the manifest
 
 
+def test_quiet_verify_prints_only_the_verdict_with_the_same_exit(bundle, capsys):
+    """`fluxpart verify DIR --quiet` prints the verdict and the caution only, same exit."""
+    assert main(["verify", str(bundle / "out"), "--quiet"]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("bit-identical") and out.count("\n") == 2
+    assert out.splitlines()[1].startswith("Caution:") and "not a certified credit" in out
+
+
 def test_moved_bundle_verifies_without_options(bundle, tmp_path):
     """Result, input and config moved together: found through the recorded relative paths."""
     moved = tmp_path / "elsewhere" / "deeper"
