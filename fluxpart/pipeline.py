@@ -500,9 +500,9 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
     # the daytime method estimates E0 from its own night windows; where none has the
     # temperature range for it (e.g. a damped soil temperature), the nighttime method's
     # E0 stands in, flagged "fallback" in the daytime parameter table and warned about
-    e0_finite = np.asarray(night.e0, dtype=float)[np.isfinite(night.e0)]
-    day_e0_fallback = config.e0_fallback if config.e0_fallback is not None or not \
-        e0_finite.size else float(np.median(e0_finite))
+    day_e0_fallback = config.e0_fallback
+    if day_e0_fallback is None and np.isfinite(night.e0).any():
+        day_e0_fallback = float(np.nanmedian(night.e0))
     day = daytime.partition_daytime(
         frame.index, nee_measured, filled_drivers["rg_filled"].to_numpy(),
         filled_drivers["vpd_filled"].to_numpy(), temperature_filled, is_night,
