@@ -166,3 +166,23 @@ def test_a_fit_with_e0_pressed_against_the_range_is_set_aside():
     assert choice.driver == "tair"
     assert "within one standard error of the accepted range [30.0, 450.0] K" in choice.reason
     assert "soil-temperature fit puts E0 at" in choice.reason
+
+
+def test_strong_evidence_keeps_a_candidate_whose_e0_is_near_the_range():
+    """Known truth: respiration planted on soil temperature with a high E0 (400 K, inside
+    Reichstein et al. 2005's 30-450 K range (m)), few noisy night records, so the soil fit's
+    E0 comes out within one standard error of 450 K. Its sum of squares is lower by strong
+    evidence (ΔBIC < -6, Kass & Raftery 1995 (m)), so soil temperature is chosen, with the
+    reason saying so; the bound rule alone would have picked air temperature."""
+    from fluxpart.partition import temperature_choice as tc
+
+    assert tc.STRONG_EVIDENCE_BIC == 6.0
+    rng, index, tair, tsoil, is_night = _weather(seed=5)
+    elapsed = np.asarray((index - index[0]) / pd.Timedelta(days=1))
+    reco = _eq11(tsoil, 1.5 + 0.3 * np.sin(2 * np.pi * elapsed / 60.0), 400.0)
+    measured = is_night & (rng.random(len(index)) < 0.12)
+    nee = np.where(measured, reco + rng.normal(0.0, 0.8, len(index)), np.nan)
+    choice = choose_respiration_temperature(index, nee, tair, tsoil, is_night)
+    assert choice.delta_bic < -tc.STRONG_EVIDENCE_BIC
+    assert choice.driver == "tsoil"
+    assert "strongly" in choice.reason and "within one standard error" in choice.reason
