@@ -562,6 +562,8 @@ def _month_day(year_start) -> tuple[int, int]:
             return month, day
         except ValueError:
             pass
-    raise ConfigError(f"[processing] year_start = {year_start!r}: expected a day of the year as "
+    from .config import setting_text
+    raise ConfigError(f"[processing] year_start = {setting_text(year_start)} is not allowed: "
+                      "expected a day of the year as "
                       "\"MM-DD\", e.g. \"07-01\" (29 February is not in every year)")
 
