@@ -677,21 +677,34 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
 
     warnings: list[str] = []
     parts, mapping = [], None
+    empty = []
     for path_ in paths:
-        part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
-                          time_columns=time_columns, time_format=time_format,
-                          missing=missing, delimiter=delimiter, decimal=decimal,
-                          encoding=encoding, rows_before_header=rows_before_header,
-                          rows_after_header=rows_after_header, time_zone=time_zone,
-                          utc_offset=utc_offset, warnings=warnings)
+        try:
+            part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
+                              time_columns=time_columns, time_format=time_format,
+                              missing=missing, delimiter=delimiter, decimal=decimal,
+                              encoding=encoding, rows_before_header=rows_before_header,
+                              rows_after_header=rows_after_header, time_zone=time_zone,
+                              utc_offset=utc_offset, warnings=warnings)
+        except _EmptyFileError as error:
+            # one of several files without records (a logger file opened at a power cut):
+            # it holds nothing to read, so the others are read and it is named
+            if len(paths) == 1:
+                raise
+            empty.append(str(path_))
+            warnings.append(f"{error}: skipped, the other input files read")
+            continue
         found = (part["mapping"], part["flag_columns"])
         if mapping is not None and found != (mapping, flag_columns):
             raise InputFileError(f"{str(path_)!r} maps columns differently from "
-                                 f"{str(paths[0])!r} ({_describe_mapping(*found)} vs "
+                                 f"{parts[0]['source']!r} ({_describe_mapping(*found)} vs "
                                  f"{_describe_mapping(mapping, flag_columns)}); give every file "
                                  "the same columns or map them explicitly in [input.columns]")
         mapping, flag_columns = found
         parts.append(part)
+    if not parts:
+        raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
+                             f"{empty[0]!r}); check [input] path")
     combined = _combine(parts)
 
     stamps = combined["stamps"]
@@ -1105,6 +1118,10 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
     return text, ("utf-8" if encoding == "utf-8-sig" else encoding)
 
 
+class _EmptyFileError(InputFileError):
+    """An input file without records (0 bytes, blank, or a header only)."""
+
+
 def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                rows_after_header: int) -> tuple[pd.DataFrame, np.ndarray, list]:
     """Every cell as text; return the non-blank rows, their line numbers, the header."""
@@ -1121,7 +1138,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
         header = pd.read_csv(_io.StringIO(text), header=None, nrows=1,
                              skiprows=rows_before_header, **options).iloc[0].tolist()
     except pd.errors.EmptyDataError:
-        raise InputFileError(f"input file {str(path)!r} is empty; expected a header line "
+        raise _EmptyFileError(f"input file {str(path)!r} is empty; expected a header line "
                              "and records" + (f" after {rows_before_header} line(s) "
                                               "(rows_before_header)"
                                               if rows_before_header else "")) from None
@@ -1134,7 +1151,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
     if raw.empty:
-        raise InputFileError(f"input file {str(path)!r} has a header but no records")
+        raise _EmptyFileError(f"input file {str(path)!r} has a header but no records")
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
     return raw, lines, [str(h).strip() for h in header]

@@ -853,6 +853,29 @@ def test_glob_and_list_in_site_config(tmp_path):
         read_site_config(_site_toml(tmp_path, csv="none_*.csv"))
 
 
+@pytest.mark.parametrize("content", ["", "\n\n", "stamp,co2_flux,sw_in,t_air,vpd_air,u_fric\n"])
+def test_empty_file_among_several_is_skipped_and_named(tmp_path, content):
+    """A 0-byte, blank or header-only file in a glob (a logger file opened as the power
+    failed) is skipped with a warning naming it; the others read as without it (robustness
+    leftover 3: it stopped the whole read). Alone, or all empty, it stays an error."""
+    records = _records(periods=200)
+    first = _write(tmp_path / "a.csv", records.iloc[:100])
+    second = _write(tmp_path / "c.csv", records.iloc[100:])
+    empty = tmp_path / "b.csv"
+    empty.write_text(content)
+    frame, report = _read([first, empty, second])
+    pd.testing.assert_frame_equal(frame, _read([first, second])[0])
+    named = [w for w in report.warnings if "b.csv" in w]
+    assert len(named) == 1 and "skipped" in named[0]
+    with pytest.raises(InputFileError, match="b.csv"):
+        _read(empty)
+    other = tmp_path / "d.csv"
+    other.write_text("")
+    with pytest.raises(InputFileError, match=r"every input file is empty \(2 files, e.g. "
+                                             r"'.*b.csv'\)"):
+        _read([empty, other])
+
+
 def test_conflicting_overlap_names_both_files_and_lines(tmp_path):
     """Overlapping files that disagree: one error naming both files and lines."""
     records = _records(periods=100)
