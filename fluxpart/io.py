@@ -28,11 +28,13 @@ written.
 from __future__ import annotations
 
 import codecs
+import csv
 import difflib
 import glob
 import hashlib
 import io as _io
 import math
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -692,7 +694,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             if len(paths) == 1:
                 raise
             empty.append(str(path_))
-            warnings.append(f"{error}: skipped, the other input files read")
+            warnings.append(f"input file {str(path_)!r} {error.what}: skipped (a logger file "
+                            "opened as the power failed?); the other input files were read")
             continue
         found = (part["mapping"], part["flag_columns"])
         if mapping is not None and found != (mapping, flag_columns):
@@ -1119,12 +1122,25 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
 
 
 class _EmptyFileError(InputFileError):
-    """An input file without records (0 bytes, blank, or a header only)."""
+    """An input file without records (0 bytes, blank, or a header only).
+
+    ``what`` says which, for the warning when the file is one of several and skipped.
+    """
+
+    def __init__(self, message: str, what: str):
+        super().__init__(message)
+        self.what = what
 
 
 def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
-               rows_after_header: int) -> tuple[pd.DataFrame, np.ndarray, list]:
-    """Every cell as text; return the non-blank rows, their line numbers, the header."""
+               rows_after_header: int, warnings=None) -> tuple[pd.DataFrame, np.ndarray, list]:
+    """Every cell as text; return the non-blank rows, their line numbers, the header.
+
+    A line with fewer fields than the header is a record cut short, its last value
+    possibly cut mid-number ("12.5" written as "1"): as the file's last line (a
+    logger stopped mid-write, a power cut) it is dropped with a note in `warnings`;
+    elsewhere it is an error naming the line. A line with more fields is an error.
+    """
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
     options = {"dtype": str, "keep_default_na": False, "na_filter": False}
@@ -1139,22 +1155,79 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                              skiprows=rows_before_header, **options).iloc[0].tolist()
     except pd.errors.EmptyDataError:
         raise _EmptyFileError(f"input file {str(path)!r} is empty; expected a header line "
-                             "and records" + (f" after {rows_before_header} line(s) "
-                                              "(rows_before_header)"
-                                              if rows_before_header else "")) from None
+                              "and records" + (f" after {rows_before_header} line(s) "
+                                               "(rows_before_header)"
+                                               if rows_before_header else ""),
+                              "is empty" if not text else "holds only blank lines") from None
     except pd.errors.ParserError as error:
-        raise InputFileError(f"input file {str(path)!r} cannot be parsed with delimiter "
-                             f"{delimiter!r}: {' '.join(str(error).split())}") from None
+        raise InputFileError(_parser_message(path, delimiter, str(error))) from None
     blank = (raw.apply(lambda column: column.str.strip()) == "").all(axis=1).to_numpy() \
         if raw.shape[1] else np.ones(len(raw), dtype=bool)
     lines = np.arange(len(raw)) + rows_before_header + rows_after_header + 2
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
+    raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings)
     if raw.empty:
-        raise _EmptyFileError(f"input file {str(path)!r} has a header but no records")
+        raise _EmptyFileError(f"input file {str(path)!r} has a header but no records",
+                              "has a header but no records")
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
     return raw, lines, [str(h).strip() for h in header]
+
+
+def _parser_message(path: Path, delimiter: str, error: str) -> str:
+    """The tokenizer's complaint as one plain line naming the file and line."""
+    found = re.search(r"Expected (\d+) fields in line (\d+), saw (\d+)", error)
+    if found:
+        expected, line, saw = found.groups()
+        return (f"input file {str(path)!r}: line {line} has {saw} fields where the header has "
+                f"{expected} (delimiter {delimiter!r}); a delimiter inside a value, or two "
+                "records run together after an interrupted write? Correct or delete that line "
+                "in a copy of the file")
+    return (f"input file {str(path)!r} cannot be parsed with delimiter {delimiter!r}: "
+            f"{' '.join(error.split())}")
+
+
+def _field_count(line: str, delimiter: str) -> int:
+    if delimiter == _WHITESPACE:
+        return len(line.split())
+    return len(next(csv.reader([line], delimiter=delimiter), []))
+
+
+def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndarray,
+                        delimiter: str, warnings) -> tuple[pd.DataFrame, np.ndarray]:
+    """Find lines with fewer fields than the header (read as empty cells by the parser)."""
+    if raw.empty or raw.shape[1] < 2:
+        return raw, lines
+    # a short line reads as "" in its last column; only those lines are counted
+    candidates = np.flatnonzero((raw.iloc[:, -1] == "").to_numpy())
+    if candidates.size == 0:
+        return raw, lines
+    text_lines = text.splitlines()
+    width = raw.shape[1]
+    short = [int(row) for row in candidates
+             if lines[row] - 1 < len(text_lines)
+             and _field_count(text_lines[lines[row] - 1], delimiter) < width]
+    if not short:
+        return raw, lines
+    last = len(raw) - 1
+    inner = [row for row in short if row != last]
+    if inner:
+        row = inner[0]
+        raise InputFileError(
+            f"input file {str(path)!r}: line {int(lines[row])} has "
+            f"{_field_count(text_lines[lines[row] - 1], delimiter)} fields where the header has "
+            f"{width}; a record cut short may hold a value cut mid-number; "
+            f"{len(inner)} such line(s) before the last. Complete or delete them in a copy of "
+            "the file (write missing values as empty cells between delimiters)")
+    fields = _field_count(text_lines[lines[last] - 1], delimiter)
+    note = (f"input file {str(path)!r}: its last line ({int(lines[last])}) has {fields} fields "
+            f"where the header has {width}, a record cut short (a logger stopped mid-write): "
+            "dropped")
+    if warnings is None:
+        raise InputFileError(note.replace(": dropped", "; delete that line"))
+    warnings.append(note)
+    return raw.iloc[:last].reset_index(drop=True), lines[:last]
 
 
 def _check_header_line(raw: pd.DataFrame, text: str, delimiter: str, time_columns: tuple,
@@ -1182,7 +1255,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     """Read one file: its stamps in local standard time and the numbers of each column."""
     text, used_encoding = _decode(path, encoding)
     raw, lines, header = _read_text(path, text, delimiter, rows_before_header,
-                                    rows_after_header)
+                                    rows_after_header, warnings)
     _check_header_line(raw, text, delimiter, time_columns, rows_before_header, path)
     mapping, flag_columns = _resolve_columns(columns, units, list(raw.columns), header,
                                              time_columns, flag_columns, path)

@@ -876,6 +876,49 @@ def test_empty_file_among_several_is_skipped_and_named(tmp_path, content):
         _read([empty, other])
 
 
+def test_last_line_cut_short_is_dropped_and_named(tmp_path):
+    """A last line with fewer fields than the header (a logger stopped mid-write) is dropped
+    with a warning naming file and line: its last value may be cut mid-number ("-0.405" written
+    as "-0") and was read before as a measured value (fresh-eyes campaign)."""
+    records = _records(periods=200)
+    path = _write(tmp_path / "t.csv", records)
+    text = path.read_text()
+    lines = text.splitlines()
+    cut = tmp_path / "cut.csv"
+    cut.write_text("\n".join(lines[:-1] + [lines[-1][:25]]))   # no final newline either
+    frame, report = _read(cut)
+    pd.testing.assert_frame_equal(frame, _read(path)[0].iloc[:-1], check_freq=False)
+    named = [w for w in report.warnings if "cut.csv" in w and "last line (201)" in w]
+    assert len(named) == 1 and "dropped" in named[0]
+
+
+def test_short_line_inside_a_file_is_an_error_naming_it(tmp_path):
+    """A line cut short before the last one is refused naming the line, not read as missing
+    values (its last value may be cut); a line with too many fields names the line plainly."""
+    records = _records(periods=200)
+    lines = _write(tmp_path / "t.csv", records).read_text().splitlines()
+    short = tmp_path / "short.csv"
+    short.write_text("\n".join(lines[:50] + [lines[50][:20]] + lines[51:]) + "\n")
+    with pytest.raises(InputFileError, match=r"'.*short.csv': line 51 has 2 fields where the "
+                                             r"header has \d+; a record cut short"):
+        _read(short)
+    long = tmp_path / "long.csv"
+    long.write_text("\n".join(lines[:50] + [lines[50] + ",7"] + lines[51:]) + "\n")
+    with pytest.raises(InputFileError, match=r"'.*long.csv': line 51 has \d+ fields where the "
+                                             r"header has \d+ \(delimiter ','\)"):
+        _read(long)
+
+
+def test_empty_last_cells_are_not_a_cut_line(tmp_path):
+    """A last line whose final cells are empty but delimited is complete: nothing dropped."""
+    records = _records(periods=200)
+    records.iloc[-1, -1] = np.nan
+    path = _write(tmp_path / "t.csv", records)
+    assert path.read_text().splitlines()[-1].endswith(",")
+    frame, report = _read(path)
+    assert len(frame) == 200 and not any("cut short" in w for w in report.warnings)
+
+
 def test_conflicting_overlap_names_both_files_and_lines(tmp_path):
     """Overlapping files that disagree: one error naming both files and lines."""
     records = _records(periods=100)
