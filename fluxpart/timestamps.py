@@ -107,8 +107,12 @@ def _to_datetime(text: pd.Series, time_format: str, utc: bool) -> pd.Series:
     try:
         return pd.to_datetime(text, format=time_format, errors="coerce", utc=utc)
     except (ValueError, TypeError) as error:
+        hint = ""
+        if "%s" in time_format:
+            hint = ("; %s (Unix time, seconds since 1970 UTC) is not read: write the column "
+                    "as dates and times in a copy of the file and set time_format to match")
         raise TimestampError(f"[input] time_format = {time_format!r} cannot be used: "
-                             f"{' '.join(str(error).split())}") from None
+                             f"{' '.join(str(error).split())}{hint}") from None
 
 
 _CLOCK_FIELD = re.compile(r"%H%M(%S)?")
@@ -204,6 +208,45 @@ def _hour_24(text: pd.Series, failed: np.ndarray, time_format: str
     return rewritten, is_24
 
 
+#: Numeric clocks users export instead of dates: name, unit in seconds, epoch, plausible
+#: range of values (stamps of 1971-2100), how a spreadsheet or a logger writes them.
+_NUMERIC_CLOCKS = (
+    ("seconds since 1970-01-01 UTC (Unix time)", 1.0, "1970-01-01", (3.2e7, 4.11e9)),
+    ("milliseconds since 1970-01-01 UTC (Unix time)", 1e-3, "1970-01-01", (3.2e10, 4.11e12)),
+    ("spreadsheet day numbers (days since 1899-12-30, as Excel and LibreOffice count)",
+     86400.0, "1899-12-30", (26000.0, 73051.0)),
+)
+
+
+def _numeric_clock(text: pd.Series) -> str:
+    """Name a column of plain numbers that count time (Unix time, spreadsheet days), or "".
+
+    They are refused rather than read: Unix time is UTC while spreadsheet day numbers
+    carry whatever clock the sheet had, so either needs the user's word on the zone.
+    The test: every stamp a number in the clock's plausible range, and the median step
+    between stamps 30 or 60 minutes in its unit.
+    """
+    numbers = pd.to_numeric(text.str.strip(), errors="coerce").to_numpy(dtype=float)
+    if numbers.size < 3 or not np.isfinite(numbers).all():
+        return ""
+    step = np.median(np.diff(numbers))
+    for name, seconds, epoch, (low, high) in _NUMERIC_CLOCKS:
+        if not (low <= numbers.min() and numbers.max() <= high):
+            continue
+        minutes = step * seconds / 60.0
+        if not any(abs(minutes - m) < 0.01 for m in (30.0, 60.0)):
+            continue
+        first = pd.Timestamp(epoch) + pd.Timedelta(seconds=float(numbers[0]) * seconds)
+        zone = " UTC" if "UTC" in name else ""
+        return (f"the stamps are {name}, not dates ({text.iloc[0].strip()!r} is "
+                f"{first.round('min'):%Y-%m-%d %H:%M}{zone}), which fluxpart does not read: "
+                "write the column as dates and times in a copy of the file (e.g. 2021-06-01 "
+                "13:30; in a spreadsheet, format the column as yyyy-mm-dd hh:mm before saving "
+                "as CSV) and set [input] time_format to match"
+                + (", with [input] time_zone = \"UTC\" if you keep UTC" if zone else ""))
+    return ""
+
+
 def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, source: str,
                  lines: np.ndarray, utc_offset: float | None = None,
                  time_zone: str | None = None) -> ParsedStamps:
@@ -286,6 +329,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "rows_after_header = 1")
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
+        elif _numeric_clock(text):
+            hint = "; " + _numeric_clock(text)
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
