@@ -69,6 +69,28 @@ def test_unknown_key_suggests_nearest(tmp_path):
         Config.from_toml(path)
 
 
+@pytest.mark.parametrize(("text", "hint"), [
+    ("[processing]\nseed = 1\nseed = 2\n", "given twice there: keep one"),
+    ("[processing]\nseed = 1\n[processing]\nseed = 2\n", "given twice there: keep one"),
+])
+def test_twice_given_setting_or_table_is_named(tmp_path, text, hint):
+    """A key or table written twice (TOML 1.0 forbids both) gets a plain hint after the
+    parser's line and column (fresh-eyes campaign: 'Cannot overwrite a value' alone)."""
+    path = tmp_path / "site.toml"
+    path.write_text(text, encoding="utf-8")
+    with pytest.raises(ConfigError, match=rf"not valid TOML: .*line \d+.*{hint}"):
+        Config.from_toml(path)
+
+
+def test_data_file_given_as_config_is_named(tmp_path):
+    """The CSV given where the site config belongs is named as a data file."""
+    path = tmp_path / "tower.csv"
+    path.write_text("stamp,nee\n202101010030,1.2\n", encoding="utf-8")
+    with pytest.raises(ConfigError, match=r"tower.csv looks like a data file: give the site "
+                                          r"config \(.toml\)"):
+        Config.from_toml(path)
+
+
 def test_suggest_key_without_close_match_lists_valid():
     """With no close match, suggest_key lists the valid keys."""
     assert "valid settings: alpha, beta" in suggest_key("zzz", ["beta", "alpha"])
