@@ -1417,15 +1417,19 @@ def _near(name: str, options: list) -> str:
     return f" (did you mean {close[0]!r}?)" if close else ""
 
 
+#: Delimiters a one-cell header may reveal: character, its name, the TOML value that sets it
+#: (a tab must be written "\t" in double quotes: in single quotes TOML keeps the backslash).
+_DELIMITER_HINTS = ((";", "semicolons", '";"'), ("\t", "tabs", '"\\t"'), (",", "commas", '","'),
+                    (" ", "spaces", '"whitespace"'), ("|", "vertical bars", '"|"'))
+
+
 def _columns_listing(file_columns: list) -> str:
-    listing = f"the file has columns: {', '.join(repr(c) for c in file_columns)}"
     if len(file_columns) == 1:
-        for candidate in (";", "\t", ",", " ", "|"):
+        for candidate, name, toml in _DELIMITER_HINTS:
             if candidate in str(file_columns[0]):
-                listing += (f"; the single header cell contains {candidate!r}: set [input] "
-                            f"delimiter = {candidate!r}")
-                break
-    return listing
+                return (f"the file's header is one cell holding {name}: set [input] "
+                        f"delimiter = {toml}")
+    return f"the file has columns: {', '.join(repr(c) for c in file_columns)}"
 
 
 # --------------------------------------------------------------------------- values
