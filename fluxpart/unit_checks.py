@@ -70,6 +70,10 @@ _SIGN_MIN_RELEASE = 3.0
 # Records in "warm and bright" conditions a mix-up check needs (our choice: half a
 # day of half-hours, so that one odd afternoon cannot decide).
 _MIN_ACTIVE_RECORDS = 24
+#: Median Rg [W m-2] of the records without sun below which the column is not global
+#: radiation: a pyranometer's night thermal offset is 0 to about -10 W m-2 (m), while net
+#: radiation at night is -30 to -100 W m-2 under a clear sky and near 0 under cloud (m).
+_NIGHT_RG_FLOOR = -20.0
 # Usual band of the 90th percentile of |value| over a record, in the canonical unit,
 # used only to rank alternative units when several would make a column plausible
 # (our choice, common practice).
@@ -389,10 +393,17 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
 
 def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: int,
                 potential):
-    """Rg in kW m-2 or in MJ m-2 per interval read as W m-2."""
+    """Rg in kW m-2 or in MJ m-2 per interval read as W m-2, or net radiation mapped as Rg."""
     rg = converted.get("rg")
     if rg is None or potential is None or units.get("rg") not in (None, "W m-2", "W/m2"):
         return None
+    dark = (np.asarray(potential) <= 0.0) & np.isfinite(rg)
+    if dark.sum() >= _MIN_ACTIVE_RECORDS and np.median(rg[dark]) < _NIGHT_RG_FLOOR:
+        return (f"column {columns['rg']!r} (rg): with the sun down its median is "
+                f"{np.median(rg[dark]):.0f} W m-2, where a pyranometer reads about 0 (a few "
+                "W m-2 of thermal offset); the values look like net radiation (or a sensor "
+                "with a large offset): map global (incoming short-wave) radiation as rg "
+                "(or list rg in [input] accept_units)")
     bright = (np.asarray(potential) > 400.0) & np.isfinite(rg)
     if bright.sum() < _MIN_ACTIVE_RECORDS:
         return None

@@ -66,3 +66,27 @@ def test_zero_written_for_missing_refused(fen_year):
     message = _nee_refusal(nee, fen_year)
     assert message is not None and "'co2_flux' (nee)" in message
     assert "add 0 to [input] missing" in message
+
+
+@pytest.mark.parametrize("seed", [0, 4])
+def test_net_radiation_mapped_as_rg_refused(seed):
+    """Net radiation mapped as rg (negative all night) was read as global radiation, only
+    its values below -50 W m-2 rejected: the light response then saw a darker site. It is
+    refused naming the column. Facts (m): net radiation at night is about -30 to -100 W m-2
+    under a clear sky; a pyranometer's night offset is 0 to about -10 W m-2. The generated
+    global radiation itself passes (no false refusal)."""
+    from fluxpart import scenarios, solar
+
+    year = scenarios.generate(seed)
+    frame, site = year.frame, year.site
+    minutes = int((frame.index[1] - frame.index[0]).total_seconds() // 60)
+    potential = solar.potential_radiation(frame.index, site.latitude, site.longitude,
+                                          site.utc_offset, minutes)
+    rg = frame["rg"].to_numpy(float)
+    columns = {"rg": "sw"}
+    refusals, _ = mixup_messages({"rg": rg}, {}, columns, minutes, potential)
+    assert "rg" not in refusals
+    # net radiation: about 0.65 of the short-wave gain by day minus 45 W m-2 of long-wave loss
+    net = 0.65 * rg - 45.0
+    refusals, _ = mixup_messages({"rg": net}, {}, columns, minutes, potential)
+    assert "'sw' (rg)" in refusals["rg"] and "net radiation" in refusals["rg"]
