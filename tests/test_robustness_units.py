@@ -90,3 +90,27 @@ def test_net_radiation_mapped_as_rg_refused(seed):
     net = 0.65 * rg - 45.0
     refusals, _ = mixup_messages({"rg": net}, {}, columns, minutes, potential)
     assert "'sw' (rg)" in refusals["rg"] and "net radiation" in refusals["rg"]
+
+
+@pytest.mark.parametrize("seed", [0, 15, 18])
+def test_fahrenheit_air_temperature_of_a_cool_site_refused(seed):
+    """Air temperature in °F read as °C at a cool site: fewer than 5 % of the values leave
+    the 60 °C range limit, so the range check only warned and the record was read 1.8 T + 32
+    too warm; VPD checks then blamed VPD's unit. Refused naming tair and °F, VPD left alone.
+    Facts: °F = 9/5 °C + 32 (NIST SP 811 (m)); the warmest monthly mean air temperatures
+    measured are about 39 °C (Death Valley, July (m)). Correct records and kelvin pass it."""
+    from fluxpart import scenarios
+
+    year = scenarios.generate(seed)
+    frame = year.frame
+    minutes = int((frame.index[1] - frame.index[0]).total_seconds() // 60)
+    converted = {n: frame[n].to_numpy(float) for n in ("nee", "rg", "tair", "vpd")}
+    columns = {n: n for n in converted}
+    refusals, _ = mixup_messages(converted, {}, columns, minutes)
+    assert refusals == {}
+    fahrenheit = dict(converted, tair=converted["tair"] * 9 / 5 + 32)
+    refusals, _ = mixup_messages(fahrenheit, {}, columns, minutes)
+    assert list(refusals) == ["tair"] and 'tair = "°F"' in refusals["tair"]
+    kelvin = dict(converted, tair=converted["tair"] + 273.15)
+    refusals, _ = mixup_messages(kelvin, {}, columns, minutes)
+    assert "tair" not in refusals
