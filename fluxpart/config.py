@@ -394,12 +394,17 @@ class Config:
         return out
 
 
-def suggest_key(key: str, valid) -> str:
-    """Return a ``"; did you mean 'x'?"`` hint for the nearest valid key, or a list."""
-    close = difflib.get_close_matches(key, list(valid), n=1, cutoff=0.5)
+def suggest_key(key: str, valid, what: str = "settings") -> str:
+    """Return a ``"; did you mean 'x'?"`` hint for the nearest valid key, or a list.
+
+    The same key in other letter case (``NEE`` for ``nee``) is the nearest of all.
+    """
+    valid = list(valid)
+    same = [v for v in valid if v.lower() == key.lower()]
+    close = same or difflib.get_close_matches(key, valid, n=1, cutoff=0.5)
     if close:
-        return f"; did you mean {close[0]!r}?"
-    return f"; valid settings: {', '.join(sorted(valid))}"
+        return f"; did you mean {close[0]!r}?" + (" (names are case-sensitive)" if same else "")
+    return f"; valid {what}: {', '.join(sorted(valid))}"
 
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),

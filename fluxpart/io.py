@@ -869,7 +869,16 @@ _INPUT_HELP = {
 def _check_keys(table: dict, valid, where: str, spell: str) -> None:
     for key in table:
         if key not in valid:
-            hint = suggest_key(key, valid)
+            if where == "site config: top-level table" and key in ("columns", "units"):
+                raise ConfigError(f"site config: the table [{key}] belongs under [input]: "
+                                  f"write it as [input.{key}]")
+            if isinstance(table[key], dict) and where.startswith("[") and spell == "{key}":
+                parent = where[1:-1]
+                tables = [v for v in valid if v in ("columns", "units")] or list(valid)
+                close = difflib.get_close_matches(key, tables, n=1, cutoff=0.5)
+                hint = f"; did you mean [{parent}.{close[0]}]?" if close else ""
+                raise ConfigError(f"table [{parent}.{key}] is unknown{hint}")
+            hint = suggest_key(key, valid, "keys" if "table" not in where else "tables")
             raise ConfigError(f"{where} {spell.format(key=key)} is unknown{hint}")
 
 
@@ -940,8 +949,7 @@ def _string_table(table, where: str) -> dict:
     for key, value in table.items():
         if key not in READER_VARIABLES:
             raise ConfigError(f"{where} {key} is not a canonical variable"
-                              f"{suggest_key(key, READER_VARIABLES)} (valid: "
-                              f"{', '.join(READER_VARIABLES)})")
+                              f"{suggest_key(key, READER_VARIABLES, 'variables')}")
         if key == "nee_flag" and where == "[input.columns]" and isinstance(value, list):
             out[key] = value
             continue

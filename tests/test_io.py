@@ -348,6 +348,14 @@ def test_read_site_config_and_read_input(tmp_path):
                                       r"'time_column'"),
     ("columns", "ustr = \"x\"\n", r"\[input.columns\] ustr is not a canonical variable; did "
                                   r"you mean 'ustar'"),
+    # fresh-eyes campaign: the case slip got the whole list twice, the misplaced or misspelt
+    # table a list of 'settings'
+    ("columns", "USTAR = \"x\"\n", r"USTAR is not a canonical variable; did you mean 'ustar'\? "
+                                   r"\(names are case-sensitive\)$"),
+    ("top", "[units]\nvpd = \"kPa\"\n", r"the table \[units\] belongs under \[input\]: write "
+                                      r"it as \[input.units\]"),
+    ("top", "[input.column]\nnee = \"x\"\n", r"table \[input.column\] is unknown; did you mean "
+                                           r"\[input.columns\]\?"),
 ])
 def test_unknown_keys_suggest_nearest(tmp_path, where, text, pattern):
     """Unknown tables and keys raise ConfigError suggesting the nearest valid key."""
