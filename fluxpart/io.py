@@ -1176,8 +1176,10 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     lines = lines[~blank]
     raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings)
     if raw.empty:
-        raise _EmptyFileError(f"input file {str(path)!r} has a header but no records",
-                              "has a header but no records")
+        skipped_after = (f" after the {rows_after_header} line(s) of rows_after_header"
+                         if rows_after_header else "")
+        raise _EmptyFileError(f"input file {str(path)!r} has a header but no records"
+                              f"{skipped_after}", "has a header but no records")
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
     return raw, lines, [str(h).strip() for h in header]

@@ -449,6 +449,14 @@ def test_empty_file_and_header_only(tmp_path):
         _read(header)
 
 
+def test_rows_after_header_past_the_records_is_named(tmp_path):
+    """rows_after_header larger than the file's records names the setting."""
+    path = _write(tmp_path / "t.csv", _records(periods=4))
+    with pytest.raises(InputFileError, match=r"t.csv' has a header but no records after the 9 "
+                                             r"line\(s\) of rows_after_header"):
+        _read(path, rows_after_header=9)
+
+
 def test_missing_column_lists_file_columns(tmp_path):
     """A mapped column absent from the file names the entry, a near name and the columns."""
     path = _write(tmp_path / "t.csv", _records().rename(columns={"u_fric": "u_frict"}))
