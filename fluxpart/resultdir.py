@@ -69,6 +69,8 @@ DEFAULT_LOCK_TIMEOUT = 600.0
 _STAGING = "staging-"
 _RETIRED = "retired-"
 _DIR_MODE = 0o755
+#: Times a writer that locked a deleted lock file locks again before it gives up checking.
+_RELOCK_TRIES = 5
 
 
 # --------------------------------------------------------------------------- names and lock
@@ -149,9 +151,15 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
             # (and deletes its marker itself)
             lock, locked = FileLock(str(path)), []
             _acquire(lock, directory, path, timeout, notify)
-        while locked and not _names_locked_file(path, locked[-1]):
+        for _ in range(_RELOCK_TRIES):
+            if not locked or _names_locked_file(path, locked[-1]):
+                break
             lock.release()      # we locked a file deleted by the previous holder: again
             _acquire(lock, directory, path, timeout, notify)
+        else:
+            # the name never led to the file locked (a file system without stable inode
+            # numbers?): hold the lock as filelock gives it, and never delete the file
+            locked.clear()
     except OSError as error:
         raise OutputError(f"cannot create the lock file {str(path)!r} beside the output folder: "
                           f"{error.strerror or error}; choose a writable output folder") from None

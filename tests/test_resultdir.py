@@ -169,6 +169,16 @@ def test_successful_write_leaves_no_lock_file(short_result, tmp_path):
     assert resultdir.lock_file(out).exists()
 
 
+def test_lock_without_stable_inodes_is_kept_not_looped(tmp_path, monkeypatch):
+    """Where the lock file's name never compares equal to the locked file (a file system
+    without stable inode numbers), the lock is held after a few tries and the file kept."""
+    monkeypatch.setattr(resultdir, "_names_locked_file", lambda path, locked: False)
+    out = tmp_path / "out"
+    with folder_lock(out, remove=True):
+        assert resultdir.lock_file(out).exists()
+    assert resultdir.lock_file(out).exists()
+
+
 _WAITER = """
 import sys, time
 from pathlib import Path
