@@ -1369,7 +1369,8 @@ def figure_light_response(drawing, written) -> Figure:
         t_typical = float(np.nanmedian(temperature)) if np.isfinite(temperature).any() else 10.0
         model = (lloyd_taylor(np.full_like(grid, t_typical), window["rref"], window["e0"])
                  - light_response(grid, np.full_like(grid, vpd_typical), window["alpha"],
-                                  window["beta0"], window["k"]))
+                                  window["beta0"], window["k"],
+                                  curvature=float(window.get("curvature", 0.0))))
         axis.plot(grid, model, color="#000000", linewidth=1.6)
         # a plain text instead of a legend (a legend per panel costs more than the panel)
         axis.text(0.02, 0.03, f"black line: fit at VPD {vpd_typical:.1f} hPa, "

@@ -482,7 +482,7 @@ def _fill_nee(nee_measured, conditions, index, is_night, config):
 
 
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
-                        temperature, config):
+                        temperature, config, curvature):
     """Gap-fill NEE after the u* filter at `threshold` and partition it both ways."""
     too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
     nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
@@ -514,7 +514,8 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
         e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
         e0_max_relative_error=config.e0_max_relative_error, e0_fallback=day_e0_fallback,
         night_min_points=config.daytime_night_min_points,
-        consistency_z=config.daytime_consistency_z, night_in_fit=config.daytime_night_in_fit)
+        consistency_z=config.daytime_consistency_z, night_in_fit=config.daytime_night_in_fit,
+        curvature=curvature)
     return too_calm, nee_measured, filled, night, day
 
 
@@ -624,9 +625,14 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     # one after another: in two threads the runs cost ~12 % more CPU and ~16 MB more
     # memory for no gain in wall time (GIL-bound); sites run in parallel in `batch`
     outcomes = {}
+    curvature = config.daytime_curvature
     for name, threshold in runs.items():
         try:
-            outcomes[name] = _fill_and_partition(*arguments, threshold, temperature, config)
+            outcomes[name] = _fill_and_partition(*arguments, threshold, temperature, config,
+                                                 curvature)
+            # the u* scenarios keep the central run's light-response curvature, so that
+            # their spread is the u* threshold's alone
+            curvature = float(outcomes["central"][4].parameters["curvature"].iloc[0])
         except InsufficientDataError as error:
             if name == "central":
                 raise

@@ -143,7 +143,7 @@ def vpd_limited_beta(vpd, beta0, k, *, vpd0=LASSLOP_VPD0_HPA):
         return np.asarray(beta0, dtype=float) * np.exp(-np.asarray(k, dtype=float) * excess)
 
 
-def light_response(rg, vpd, alpha, beta0, k, *, vpd0=LASSLOP_VPD0_HPA):
+def light_response(rg, vpd, alpha, beta0, k, *, vpd0=LASSLOP_VPD0_HPA, curvature=0.0):
     """Gross primary production by the rectangular hyperbola with VPD limitation.
 
     Parameters
@@ -163,6 +163,10 @@ def light_response(rg, vpd, alpha, beta0, k, *, vpd0=LASSLOP_VPD0_HPA):
     vpd0 : float, optional
         VPD threshold of the limitation [hPa]; default 10 hPa, Lasslop et al.
         (2010) (m).
+    curvature : float, optional
+        Curvature of the light response [1], 0 ≤ curvature < 1. Default 0: the
+        rectangular hyperbola of Lasslop et al. (2010). Above 0 the saturation is
+        sharper: :func:`non_rectangular_hyperbola` with ``pmax = beta``.
 
     Returns
     -------
@@ -189,6 +193,11 @@ def light_response(rg, vpd, alpha, beta0, k, *, vpd0=LASSLOP_VPD0_HPA):
     of net ecosystem exchange. Agricultural and Forest Meteorology 107:43–69.
     doi:10.1016/S0168-1923(00)00225-2 (the rectangular hyperbola in this form (m)).
     """
+    if curvature != 0.0:
+        beta = vpd_limited_beta(vpd, beta0, k, vpd0=vpd0)
+        gpp = non_rectangular_hyperbola(rg, alpha, beta, curvature)
+        with np.errstate(invalid="ignore"):
+            return np.where(np.asarray(rg, dtype=float) <= 0.0, 0.0, gpp)
     light = np.clip(np.asarray(rg, dtype=float), 0.0, None)
     light = np.where(np.isnan(rg), np.nan, light)
     alpha = np.asarray(alpha, dtype=float)

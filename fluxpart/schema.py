@@ -400,6 +400,8 @@ _PARAMETERS = {
     "rref_night": (FLUX, "Rref of the window's night NEE with its E0, least squares (CO2)"),
     "rref_night_se": (FLUX, "standard error of the night Rref (CO2)"),
     "weighted": ("1", "fit weighted by the random error of NEE"),
+    "curvature": ("1", "curvature of the light response (0: rectangular hyperbola, Lasslop et "
+                  "al. 2010; above 0: non-rectangular hyperbola)"),
     "k_fixed": ("1", "k fixed at 0 (not identifiable)"),
     "threshold": ("m s-1", "u* threshold"),
     "period": ("", "\"year\" or the season name"),

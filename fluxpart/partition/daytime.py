@@ -130,14 +130,14 @@ PARAMETER_COLUMNS = (
     "alpha", "beta0", "k", "rref", "e0",
     "alpha_se", "beta0_se", "k_se", "rref_se", "e0_se",
     "e0_points", "e0_window_days", "e0_source", "rref_night", "rref_night_se",
-    "rmse", "weighted", "accepted", "status", "reason", "k_fixed",
+    "rmse", "weighted", "curvature", "accepted", "status", "reason", "k_fixed",
 )
 
 #: Values of the ``status`` column.
 STATUSES = ("accepted", "replaced", "rejected")
 
 _ALPHA, _BETA0, _K, _RREF = range(4)
-_MODEL_INPUTS = ("nee", "rg", "vpd", "factor", "weight")
+_MODEL_INPUTS = ("nee", "rg", "vpd", "factor", "weight", "curvature")
 _ALPHA_START = 0.01          # µmol J-1, Lasslop et al. (2010) (m)
 _RREF_FLOOR_START = 0.1      # µmol m-2 s-1, keeps the start off the bound (our choice)
 # µmol m-2 s-1: a fitted Rref below this is the bound 0 reached to within the iteration's
@@ -152,6 +152,10 @@ _MAX_CONDITION = 1e12        # largest condition number of the scaled J^T J (our
 _E0_GRID_STEP = 10.0         # K, coarse grid of the E0 profile (our choice)
 _E0_BOUND_MARGIN = 0.5       # K, an E0 this close to a bound counts as at the bound
 _GOLDEN_ITERATIONS = 30      # shrinks the bracket by 0.618^30 ~ 5e-7 (our choice)
+# curvatures profiled by daytime_curvature = "fit": 0 (the rectangular hyperbola of
+# Lasslop et al. 2010) to 0.9, the upper end of canopy-scale values (our reading of the
+# range; leaf-level values reach 0.7-0.9, Ogren & Evans 1993 (m))
+_CURVATURE_GRID = np.round(np.arange(0.0, 0.91, 0.1), 1)
 
 
 @dataclass(frozen=True)
@@ -201,7 +205,7 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
                       e0_min_temperature_range=5.0, e0_bounds=(30.0, 450.0),
                       e0_max_relative_error=0.5, e0_fallback=None, night_min_points=5,
                       consistency_z=1.96,
-                      night_in_fit=False, max_iterations=200,
+                      night_in_fit=False, curvature=0.0, max_iterations=200,
                       tref_kelvin=LLOYD_TAYLOR_TREF_KELVIN,
                       t0_kelvin=LLOYD_TAYLOR_T0_KELVIN) -> DaytimeResult:
     """Partition NEE into GPP and Reco by the daytime light-response method.
@@ -342,6 +346,9 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
                        e0_max_relative_error, e0_fallback, night_min_points, consistency_z)
     if not isinstance(night_in_fit, (bool, np.bool_)):
         raise ConfigError(f"daytime night_in_fit = {night_in_fit!r}: expected true or false")
+    if not (curvature == "fit" or (_is_number(curvature) and 0.0 <= curvature < 1.0)):
+        raise ConfigError(f"daytime curvature = {curvature!r}: expected \"fit\" or a number "
+                          "from 0 (the rectangular hyperbola) up to, not including, 1")
     days = _days_since_start(index)
     n = len(days)
     nee = as_float(nee_measured, "nee_measured", n)
@@ -366,8 +373,10 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
                 "e0_min_temperature_range": e0_min_temperature_range, "e0_bounds": e0_bounds,
                 "e0_max_relative_error": e0_max_relative_error, "e0_fallback": e0_fallback,
                 "night_min_points": night_min_points, "consistency_z": consistency_z,
-                "night_in_fit": night_in_fit, "max_iterations": max_iterations}
+                "night_in_fit": night_in_fit, "max_iterations": max_iterations,
+                "curvature": 0.0 if curvature == "fit" else float(curvature)}
     fit = _partition(data, None, settings)
+    weight = None
     if random_error is not None:
         # Weights from the error model at the first fit's modelled NEE, not at the
         # measured values: a weight that depends on a record's own noise biases the
@@ -378,18 +387,22 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
                                       f"{sigma.shape}, expected ({n},)")
         valid = np.isfinite(sigma) & (sigma > 0)
         if valid.any():
-            sigma = np.where(valid, sigma, np.median(sigma[valid]))
-            fit = _partition(data, 1.0 / sigma, settings)
+            weight = 1.0 / np.where(valid, sigma, np.median(sigma[valid]))
+    if curvature == "fit":
+        # one curvature for the whole record, profiled on the final weights
+        settings["curvature"], _ = _profile_curvature(data, weight, settings)
+    if weight is not None or curvature == "fit":
+        fit = _partition(data, weight, settings)
     parameters = _parameter_table(index, fit)
     return DaytimeResult(gpp=fit["gpp"], reco=fit["reco"], e0=fit["e0"], parameters=parameters)
 
 
-def _partition(data, weight, settings) -> dict:
-    """One pass of the method with fixed weights (None: unweighted); see the module docstring."""
+def _prepare(data, weight, settings) -> dict:
+    """Windows, E0, night Rref, starting values, bounds and fixed parameters of one pass."""
     days, nee, arrhenius = data["days"], data["nee"], data["arrhenius"]
     usable_day, usable_night = data["usable_day"], data["usable_night"]
     supplied_e0 = data["supplied_e0"]
-    vpd0, max_iterations = settings["vpd0"], settings["max_iterations"]
+    vpd0 = settings["vpd0"]
     starts, ends = _window_bounds(days, settings["window_days"], settings["window_step_days"])
     centres = (starts + ends) / 2.0
     if supplied_e0 is None:
@@ -402,6 +415,7 @@ def _partition(data, weight, settings) -> dict:
     windows = _gather_windows(days, starts, ends, usable_day, usable_night, nee, data["rg"],
                               data["vpd"], arrhenius, weight, vpd0, settings["night_in_fit"],
                               e0_fit, supplied_e0)
+    windows["curvature"] = np.full(len(starts), float(settings["curvature"]))
     rref_night, rref_night_se = _night_rref(windows, settings["night_min_points"])
 
     alpha_bounds = settings["alpha_bounds"]
@@ -415,6 +429,22 @@ def _partition(data, weight, settings) -> dict:
     fixed[~fitted] = True
     theta0[~k_free, _K] = 0.0
     mask = windows["mask"] & fitted[:, None]
+    return {"starts": starts, "ends": ends, "centres": centres, "e0_fit": e0_fit,
+            "windows": windows, "rref_night": rref_night, "rref_night_se": rref_night_se,
+            "lower": lower, "upper": upper, "theta0": theta0, "fixed": fixed,
+            "fitted": fitted, "mask": mask}
+
+
+def _partition(data, weight, settings) -> dict:
+    """One pass of the method with fixed weights (None: unweighted); see the module docstring."""
+    days, arrhenius, supplied_e0 = data["days"], data["arrhenius"], data["supplied_e0"]
+    vpd0, max_iterations = settings["vpd0"], settings["max_iterations"]
+    prepared = _prepare(data, weight, settings)
+    starts, ends, centres, e0_fit, windows = (prepared[name] for name in (
+        "starts", "ends", "centres", "e0_fit", "windows"))
+    rref_night, rref_night_se, lower, upper, theta0, fixed, fitted, mask = (
+        prepared[name] for name in ("rref_night", "rref_night_se", "lower", "upper", "theta0",
+                                    "fixed", "fitted", "mask"))
     theta, converged = _levenberg_marquardt(theta0, fixed, lower, upper, windows, mask,
                                             vpd0, max_iterations)
     errors, rmse = _standard_errors(theta, fixed, lower, upper, windows, mask, vpd0)
@@ -451,7 +481,8 @@ def _partition(data, weight, settings) -> dict:
         parameters = theta[used][side]
         e0_side = supplied_e0 if supplied_e0 is not None else window_e0[side]
         gpp += time_share * light_response(data["rg"], data["vpd"], parameters[:, _ALPHA],
-                                           parameters[:, _BETA0], parameters[:, _K], vpd0=vpd0)
+                                           parameters[:, _BETA0], parameters[:, _K], vpd0=vpd0,
+                                           curvature=settings["curvature"])
         with np.errstate(over="ignore", invalid="ignore"):
             reco += time_share * parameters[:, _RREF] * np.exp(e0_side * arrhenius)
     if e0_fit is None:
@@ -463,7 +494,54 @@ def _partition(data, weight, settings) -> dict:
             "windows": windows, "theta": theta, "errors": errors, "rmse": rmse,
             "status": status, "reason": reason, "k_fixed": fixed[:, _K] | (theta[:, _K] == 0.0),
             "e0_fit": e0_fit, "rref_night": rref_night, "rref_night_se": rref_night_se,
-            "weighted": weight is not None}
+            "weighted": weight is not None, "curvature": settings["curvature"]}
+
+
+def _profile_curvature(data, weight, settings):
+    """The light-response curvature of a whole record, by profiling the window fits.
+
+    Every window with enough daytime records is fitted (all four parameters free
+    within their bounds) at each curvature of `_CURVATURE_GRID`; the summed cost
+    (half the weighted sum of squares, over the windows that converged at every
+    grid value) is the profile of the record's likelihood in the curvature when
+    the weights are ``1/σ``. The best grid value is refined by the vertex of the
+    parabola through it and its two neighbours (our choice; the profile is smooth),
+    kept within the grid's range.
+
+    Returns
+    -------
+    curvature : float
+        The chosen curvature [1].
+    profile : numpy.ndarray
+        Summed cost at each grid value [1].
+    """
+    prepared = _prepare(data, weight, {**settings, "curvature": 0.0})
+    windows, fitted, mask = prepared["windows"], prepared["fitted"], prepared["mask"]
+    rows = np.flatnonzero(fitted)
+    if len(rows) == 0:
+        return 0.0, np.full(len(_CURVATURE_GRID), np.nan)
+    costs = np.empty((len(_CURVATURE_GRID), len(rows)))
+    converged_everywhere = np.ones(len(rows), dtype=bool)
+    for number, value in enumerate(_CURVATURE_GRID):
+        windows["curvature"][:] = value
+        theta, converged = _levenberg_marquardt(
+            prepared["theta0"], prepared["fixed"], prepared["lower"], prepared["upper"],
+            windows, mask, settings["vpd0"], settings["max_iterations"])
+        packed = _packed_fit_data(windows, mask, rows, settings["vpd0"])
+        costs[number], _ = _cost(theta[rows], packed)
+        converged_everywhere &= converged[rows] & np.isfinite(costs[number])
+    if not converged_everywhere.any():
+        return 0.0, np.full(len(_CURVATURE_GRID), np.nan)
+    profile = costs[:, converged_everywhere].sum(axis=1)
+    best = int(np.argmin(profile))
+    chosen = float(_CURVATURE_GRID[best])
+    if 0 < best < len(_CURVATURE_GRID) - 1:
+        below, centre, above = profile[best - 1:best + 2]
+        bend = below - 2.0 * centre + above
+        if bend > 0:
+            step = _CURVATURE_GRID[1] - _CURVATURE_GRID[0]
+            chosen += 0.5 * step * (below - above) / bend
+    return float(np.clip(chosen, _CURVATURE_GRID[0], _CURVATURE_GRID[-1])), profile
 
 
 def _check_settings(window_days, window_step_days, min_points, k_min_points, vpd0,
@@ -884,7 +962,9 @@ def _packed_fit_data(windows, mask, rows, vpd0) -> dict:
     weight = pack(windows["weight"])
     return {"light": light, "excess": np.where(vpd_excess > 0.0, vpd_excess, 0.0),
             "factor": factor, "nee": pack(windows["nee"]), "weight": weight,
-            "factor_weight": factor * weight, "points": points, "inside": picked}
+            "factor_weight": factor * weight, "points": points, "inside": picked,
+            "curvature": (windows["curvature"][rows][:, None] if "curvature" in windows
+                          else np.zeros((len(rows), 1)))}
 
 
 def _take_rows(arrays: dict, rows) -> dict:
@@ -899,18 +979,30 @@ def _cost(theta, data):
     :func:`_packed_fit_data`.
     """
     alpha, beta0, k, rref = (theta[:, column, None] for column in range(4))
+    curvature = data["curvature"]
+    parts = {}
     with np.errstate(over="ignore", invalid="ignore"):
         reduction = np.exp(-k * data["excess"])
         beta = beta0 * reduction
         assimilation = alpha * data["light"]
-        denominator = assimilation + beta
-        inverse = np.divide(1.0, denominator, out=np.zeros_like(denominator),
-                            where=denominator != 0.0)
-        gpp = assimilation * beta * inverse
+        total = assimilation + beta
+        if curvature.any():
+            # the smaller root of curvature P^2 - (a + beta) P + a beta = 0, cancellation-free
+            root = np.sqrt(np.clip(np.square(total) - 4.0 * curvature * assimilation * beta,
+                                   0.0, None))
+            denominator = total + root
+            gpp = np.divide(2.0 * assimilation * beta, denominator,
+                            out=np.zeros_like(denominator), where=denominator != 0.0)
+            parts["root"] = root
+        else:
+            inverse = np.divide(1.0, total, out=np.zeros_like(total), where=total != 0.0)
+            gpp = assimilation * beta * inverse
+            parts["inverse"] = inverse
         residual = (rref * data["factor"] - gpp - data["nee"]) * data["weight"]
         cost = 0.5 * np.square(residual).sum(axis=1)
-    return cost, {"residual": residual, "reduction": reduction, "beta": beta,
-                  "assimilation": assimilation, "inverse": inverse}
+    parts.update(residual=residual, reduction=reduction, beta=beta, assimilation=assimilation,
+                 gpp=gpp)
+    return cost, parts
 
 
 def _normal_equations(data, parts):
@@ -918,11 +1010,21 @@ def _normal_equations(data, parts):
 
     Derivatives as :func:`fluxpart.responses.light_response_derivatives`.
     """
-    weight, beta, inverse = data["weight"], parts["beta"], parts["inverse"]
+    weight, beta = data["weight"], parts["beta"]
     with np.errstate(over="ignore", invalid="ignore"):
-        inverse_square = inverse * inverse
-        d_beta = np.square(parts["assimilation"]) * inverse_square * weight
-        jacobian = np.stack([-np.square(beta) * data["light"] * inverse_square * weight,
+        if "root" in parts:
+            # implicit differentiation of curvature P^2 - (a + beta) P + a beta = 0:
+            # dP/da = (beta - P) / root, dP/dbeta = (a - P) / root (root = the square root
+            # of the discriminant); both reduce to the rectangular forms at curvature 0
+            root, gpp = parts["root"], parts["gpp"]
+            inverse_root = np.divide(weight, root, out=np.zeros_like(root), where=root > 0.0)
+            d_alpha = -(beta - gpp) * inverse_root * data["light"]
+            d_beta = (parts["assimilation"] - gpp) * inverse_root
+        else:
+            inverse_square = parts["inverse"] * parts["inverse"]
+            d_alpha = -np.square(beta) * data["light"] * inverse_square * weight
+            d_beta = np.square(parts["assimilation"]) * inverse_square * weight
+        jacobian = np.stack([d_alpha,
                              -d_beta * parts["reduction"],
                              d_beta * beta * data["excess"],
                              data["factor_weight"]], axis=1)
@@ -972,7 +1074,7 @@ def _standard_errors(theta, fixed, lower, upper, windows, mask, vpd0):
     free = ~fixed & (theta > lower) & (theta < upper) & (diagonal > 0)
     free_count = free.sum(axis=1)
     sum_squares = 2.0 * cost
-    gpp = parts["assimilation"] * parts["beta"] * parts["inverse"]
+    gpp = parts["gpp"]
     with np.errstate(invalid="ignore"):
         plain = np.nan_to_num(theta)[:, _RREF, None] * data["factor"] - gpp - data["nee"]
     plain_squares = np.where(data["inside"], np.square(plain), 0.0).sum(axis=1)
@@ -1050,7 +1152,7 @@ def _refit_with_night_rref(refit, theta, errors, rmse, fixed, status, reason, rr
                            vpd0, max_iterations):
     """Constrained refit of the chosen windows: Rref fixed at the night Rref."""
     rows = np.flatnonzero(refit)
-    subset = {name: windows[name][rows] for name in _MODEL_INPUTS}
+    subset = {name: windows[name][rows] for name in _MODEL_INPUTS if name in windows}
     mask = usable_day_mask[rows]
     subset = {**subset, "nee": np.where(mask, subset["nee"], 0.0)}
     start = theta0[rows].copy()
@@ -1153,6 +1255,7 @@ def _parameter_table(index, fit) -> pd.DataFrame:
         "rref_night_se": fit["rref_night_se"],
         "rmse": fit["rmse"],
         "weighted": np.full(count, bool(fit["weighted"])),
+        "curvature": np.full(count, float(fit["curvature"])),
         "accepted": status != "rejected",
         "status": status.astype(str),
         "reason": reason.astype(str),

@@ -43,6 +43,7 @@ def run_one(seed: int) -> dict:
            "interval": site_year.scenario.interval_minutes, "year": site_year.scenario.year,
            "driver": site_year.scenario.parameters["driver"],
            "ustar_planted": site_year.scenario.parameters["ustar_threshold"],
+           "curvature": site_year.scenario.parameters["curvature"],
            "nee_missing": float(site_year.frame["nee"].isna().mean())}
     try:
         result = fluxpart.process(site_year.frame, site_year.site)
