@@ -42,7 +42,7 @@ import numpy as np
 import pandas as pd
 
 from ._validate import read_toml, refuse_binary
-from .config import suggest_key
+from .config import setting_text, suggest_key
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -493,7 +493,7 @@ def read_site_config(path) -> SiteConfig:
     input_paths = _resolve_paths(input_table["path"], path.parent)
     time_column = _check_time_column(input_table["time_column"])
     if not isinstance(input_table["time_format"], str) or not input_table["time_format"]:
-        raise ConfigError(f"[input] time_format = {input_table['time_format']!r}: expected a "
+        raise ConfigError(f"[input] time_format = {setting_text(input_table['time_format'])}: expected a "
                           "non-empty string such as \"%Y-%m-%d %H:%M\"")
     columns = _string_table(input_table["columns"], "[input.columns]")
     units = _string_table(input_table.get("units", {}), "[input.units]")
@@ -669,7 +669,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         raise ConfigError(f"unit_problems = {unit_problems!r}: expected 'refuse' or 'report'")
     preflight: list[str] | None = [] if unit_problems == "report" else None
     if not isinstance(time_format, str) or not time_format:
-        raise ConfigError(f"[input] time_format = {time_format!r}: expected a format string "
+        raise ConfigError(f"[input] time_format = {setting_text(time_format)}: expected a format string "
                           "such as '%Y-%m-%d %H:%M'")
     utc_offset = None if site is None else site.utc_offset
     if time_zone is not None:
@@ -890,13 +890,13 @@ def _resolve_paths(value, folder: Path) -> tuple:
     found: list[Path] = []
     for item in items:
         if not isinstance(item, str) or not item.strip():
-            raise ConfigError(f"[input] path = {value!r}: expected a file path (a string, "
+            raise ConfigError(f"[input] path = {setting_text(value)}: expected a file path (a string, "
                               "relative to the site config), a list of them or a glob")
         if _GLOB_CHARACTERS & set(item):
             pattern = item if Path(item).is_absolute() else str(folder / item)
             matches = sorted(Path(p) for p in glob.glob(pattern) if Path(p).is_file())
             if not matches:
-                raise ConfigError(f"[input] path = {item!r} matches no file in "
+                raise ConfigError(f"[input] path = {setting_text(item)} matches no file in "
                                   f"{str(Path(pattern).parent)!r}")
             found.extend(matches)
         else:
@@ -918,10 +918,10 @@ def _as_paths(path) -> list:
 def _check_time_column(value) -> tuple:
     items = value if isinstance(value, (list, tuple)) else [value]
     if not items or any(not isinstance(item, str) or not item for item in items):
-        raise ConfigError(f"[input] time_column = {value!r}: expected a column name, or a "
+        raise ConfigError(f"[input] time_column = {setting_text(value)}: expected a column name, or a "
                           "list of columns joined with one space (e.g. [\"date\", \"time\"])")
     if len(set(items)) != len(items):
-        raise ConfigError(f"[input] time_column = {value!r} names a column twice")
+        raise ConfigError(f"[input] time_column = {setting_text(value)} names a column twice")
     return tuple(items)
 
 
@@ -935,10 +935,10 @@ def _split_flag_columns(columns) -> tuple[dict, tuple]:
         return columns, ()
     items = flags if isinstance(flags, (list, tuple)) else [flags]
     if not items or any(not isinstance(item, str) or not item for item in items):
-        raise ConfigError(f"[input.columns] nee_flag = {flags!r}: expected a column name or a "
+        raise ConfigError(f"[input.columns] nee_flag = {setting_text(flags)}: expected a column name or a "
                           "list of flag columns")
     if len(set(items)) != len(items):
-        raise ConfigError(f"[input.columns] nee_flag = {flags!r} names a column twice")
+        raise ConfigError(f"[input.columns] nee_flag = {setting_text(flags)} names a column twice")
     return columns, tuple(items)
 
 
@@ -954,7 +954,7 @@ def _string_table(table, where: str) -> dict:
             out[key] = value
             continue
         if not isinstance(value, str) or not value:
-            raise ConfigError(f"{where} {key} = {value!r}: expected a non-empty string")
+            raise ConfigError(f"{where} {key} = {setting_text(value)}: expected a non-empty string")
         out[key] = value
     return out
 
@@ -982,9 +982,9 @@ def _check_mapping(columns: dict, units: dict, flag_columns: tuple = ()) -> None
 def _check_time_marks(value) -> str:
     if value not in TIME_MARKS:
         close = difflib.get_close_matches(str(value), TIME_MARKS, n=1, cutoff=0.4)
-        hint = f"; did you mean {close[0]!r}?" if close else ""
-        raise ConfigError(f"[input] time_marks = {value!r}: expected one of "
-                          f"{', '.join(repr(m) for m in TIME_MARKS)}{hint}")
+        hint = f"; did you mean {setting_text(close[0])}?" if close else ""
+        raise ConfigError(f"[input] time_marks = {setting_text(value)}: expected one of "
+                          f"{', '.join(setting_text(m) for m in TIME_MARKS)}{hint}")
     return value
 
 
@@ -992,7 +992,7 @@ def _check_missing(value) -> tuple:
     if isinstance(value, (str, int, float)) and not isinstance(value, bool):
         value = [value]
     if not isinstance(value, (list, tuple)):
-        raise ConfigError(f"[input] missing = {value!r}: expected a list of codes, "
+        raise ConfigError(f"[input] missing = {setting_text(value)}: expected a list of codes, "
                           "e.g. missing = [-9999, \"NA\"]")
     for code in value:
         if isinstance(code, bool) or not isinstance(code, (str, int, float)):
@@ -1004,16 +1004,16 @@ def _check_delimiter(value) -> str:
     if value == _WHITESPACE:
         return value
     if not isinstance(value, str) or len(value) != 1:
-        raise ConfigError(f"[input] delimiter = {value!r}: expected a single character such "
+        raise ConfigError(f"[input] delimiter = {setting_text(value)}: expected a single character such "
                           "as \",\", \";\" or \"\\t\", or \"whitespace\"")
     return value
 
 
 def _check_decimal(value, delimiter: str) -> str:
     if value not in (".", ","):
-        raise ConfigError(f"[input] decimal = {value!r}: expected \".\" or \",\"")
+        raise ConfigError(f"[input] decimal = {setting_text(value)}: expected \".\" or \",\"")
     if value == delimiter:
-        raise ConfigError(f"[input] decimal = {value!r} is also the delimiter; a file with "
+        raise ConfigError(f"[input] decimal = {setting_text(value)} is also the delimiter; a file with "
                           "decimal commas separates fields by another character: set "
                           "[input] delimiter = \";\" (or \"\\t\")")
     return value
@@ -1023,19 +1023,19 @@ def _check_encoding(value):
     if value is None:
         return None
     if not isinstance(value, str) or not value:
-        raise ConfigError(f"[input] encoding = {value!r}: expected an encoding name such as "
+        raise ConfigError(f"[input] encoding = {setting_text(value)}: expected an encoding name such as "
                           "\"latin-1\" or \"utf-16\"")
     try:
         codecs.lookup(value)
     except LookupError:
-        raise ConfigError(f"[input] encoding = {value!r} is not a known text encoding; use "
+        raise ConfigError(f"[input] encoding = {setting_text(value)} is not a known text encoding; use "
                           "e.g. \"utf-8\", \"latin-1\", \"cp1252\" or \"utf-16\"") from None
     return value
 
 
 def _check_rows(value, name: str) -> int:
     if isinstance(value, bool) or not isinstance(value, int) or value < 0:
-        raise ConfigError(f"[input] {name} = {value!r}: expected a whole number of lines >= 0")
+        raise ConfigError(f"[input] {name} = {setting_text(value)}: expected a whole number of lines >= 0")
     return value
 
 
@@ -1044,7 +1044,7 @@ def _check_interval(value):
         return None
     if isinstance(value, bool) or not isinstance(value, (int, float)) \
             or value not in INTERVALS_MINUTES:
-        raise ConfigError(f"[input] interval_minutes = {value!r}: expected 30 or 60, "
+        raise ConfigError(f"[input] interval_minutes = {setting_text(value)}: expected 30 or 60, "
                           "or leave it out to infer it from the stamps")
     return int(value)
 
@@ -1055,7 +1055,7 @@ def _check_flag_accept(value) -> tuple:
     if (not isinstance(value, (list, tuple)) or not value
             or any(isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v)
                    for v in value)):
-        raise ConfigError(f"[input] flag_accept = {value!r}: expected a list of the flag "
+        raise ConfigError(f"[input] flag_accept = {setting_text(value)}: expected a list of the flag "
                           "values that keep a record, e.g. flag_accept = [0, 1]")
     return tuple(value)
 
@@ -1063,7 +1063,7 @@ def _check_flag_accept(value) -> tuple:
 def _check_accept_units(value) -> tuple:
     if not isinstance(value, (list, tuple)) or any(
             not isinstance(v, str) or v not in READER_VARIABLES for v in value):
-        raise ConfigError(f"[input] accept_units = {value!r}: expected a list of canonical "
+        raise ConfigError(f"[input] accept_units = {setting_text(value)}: expected a list of canonical "
                           f"variables ({', '.join(READER_VARIABLES)}) whose values are kept as "
                           "declared although they look like a unit mix-up")
     return tuple(value)
@@ -1250,7 +1250,7 @@ def _check_header_line(raw: pd.DataFrame, text: str, delimiter: str, time_column
         cells = [cell.strip().strip('"') for cell in line.split(separator)]
         if number != rows_before_header and time_columns[0] in cells:
             raise MissingColumnError(
-                f"[input] time_column = {time_columns[0]!r} is not in the header read from "
+                f"[input] time_column = {setting_text(time_columns[0])} is not in the header read from "
                 f"line {rows_before_header + 1} of {str(path)!r} but on line {number + 1}: set "
                 f"[input] rows_before_header = {number}")
 
@@ -1363,22 +1363,22 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
     """Canonical name -> file column in canonical order, and the flag columns; check them."""
     for time_column in time_columns:
         if time_column not in file_columns:
-            raise MissingColumnError(f"[input] time_column = {time_column!r}: no such column in "
+            raise MissingColumnError(f"[input] time_column = {setting_text(time_column)}: no such column in "
                                      f"{str(path)!r}{_near(time_column, file_columns)}; "
                                      f"{_columns_listing(file_columns)}")
     for column in flag_columns:
         if column not in file_columns:
-            raise MissingColumnError(f"[input.columns] nee_flag = {column!r}: no such column in "
+            raise MissingColumnError(f"[input.columns] nee_flag = {setting_text(column)}: no such column in "
                                      f"{str(path)!r}{_near(column, file_columns)}; "
                                      f"{_columns_listing(file_columns)}")
     mapping = {}
     for name, column in columns.items():
         if column not in file_columns:
-            raise MissingColumnError(f"[input.columns] {name} = {column!r}: no such column in "
+            raise MissingColumnError(f"[input.columns] {name} = {setting_text(column)}: no such column in "
                                      f"{str(path)!r}{_near(column, file_columns)}; "
                                      f"{_columns_listing(file_columns)}")
         if column in time_columns:
-            raise ConfigError(f"[input.columns] {name} = {column!r} is a time column")
+            raise ConfigError(f"[input.columns] {name} = {setting_text(column)} is a time column")
         mapping[name] = column
     used = set(mapping.values()) | set(time_columns) | set(flag_columns)
     for name in VARIABLES:
@@ -1402,7 +1402,7 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
                                      f"{_columns_listing(file_columns)}")
     for name in units:
         if name not in mapping:
-            raise ConfigError(f"[input.units] {name} = {units[name]!r} is given but no {name} "
+            raise ConfigError(f"[input.units] {name} = {setting_text(units[name])} is given but no {name} "
                               "column is read; map it in [input.columns] or remove the unit")
     # pandas renames repeated headers 'x', 'x.1', ...; a mapped name must be unambiguous
     duplicated = {h for h in header if header.count(h) > 1}

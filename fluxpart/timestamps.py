@@ -20,6 +20,7 @@ from datetime import datetime, timedelta
 import numpy as np
 import pandas as pd
 
+from .config import setting_text
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -111,7 +112,7 @@ def _to_datetime(text: pd.Series, time_format: str, utc: bool) -> pd.Series:
         if "%s" in time_format:
             hint = ("; %s (Unix time, seconds since 1970 UTC) is not read: write the column "
                     "as dates and times in a copy of the file and set time_format to match")
-        raise TimestampError(f"[input] time_format = {time_format!r} cannot be used: "
+        raise TimestampError(f"[input] time_format = {setting_text(time_format)} cannot be used: "
                              f"{' '.join(str(error).split())}{hint}") from None
 
 
@@ -386,12 +387,12 @@ def check_time_zone(time_zone, utc_offset: float, when=None) -> str:
     from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
     if not isinstance(time_zone, str) or not time_zone:
-        raise ConfigError(f"[input] time_zone = {time_zone!r}: expected a zone name such as "
+        raise ConfigError(f"[input] time_zone = {setting_text(time_zone)}: expected a zone name such as "
                           "\"Europe/Berlin\" or \"Australia/Sydney\"")
     try:
         zone = ZoneInfo(time_zone)
     except (ZoneInfoNotFoundError, ValueError, OSError):
-        raise ConfigError(f"[input] time_zone = {time_zone!r} is not a known time zone; use an "
+        raise ConfigError(f"[input] time_zone = {setting_text(time_zone)} is not a known time zone; use an "
                           "\"Area/City\" name such as \"Europe/Berlin\"") from None
     moment = pd.Timestamp(when if when is not None else "2020-01-01").to_pydatetime()
     hours = set()
@@ -409,7 +410,7 @@ def check_time_zone(time_zone, utc_offset: float, when=None) -> str:
         if time_zone.startswith("Etc/GMT"):
             posix = (f"; note that Etc/GMT zones carry the POSIX sign (\"Etc/GMT-1\" is UTC+1), "
                      f"so UTC{float(utc_offset):+g} is \"Etc/GMT{-float(utc_offset):+g}\"")
-        raise ConfigError(f"[input] time_zone = {time_zone!r} has standard time UTC{standard:+g} "
+        raise ConfigError(f"[input] time_zone = {setting_text(time_zone)} has standard time UTC{standard:+g} "
                           f"but [site] utc_offset = {float(utc_offset):g}; set utc_offset = "
                           f"{standard:g} (the offset without daylight saving){posix}")
     return time_zone
@@ -432,7 +433,7 @@ def _civil_to_standard(index: pd.DatetimeIndex, text: pd.Series, time_zone: str,
         bad = int(np.flatnonzero(aware.isna())[0])
         raise TimestampError(
             f"{_time_setting(time_columns)}: {_where(source, lines, bad)} has stamp "
-            f"{text.iloc[bad]!r}, which does not exist in [input] time_zone = {time_zone!r} "
+            f"{text.iloc[bad]!r}, which does not exist in [input] time_zone = {setting_text(time_zone)} "
             "(the hour skipped when clocks go forward); if the file is in standard time "
             "all year, remove time_zone") from None
     standard = aware.tz_convert("UTC").tz_localize(None) + pd.Timedelta(hours=float(utc_offset))
@@ -537,7 +538,7 @@ def clock_alignment_warning(starts: pd.DatetimeIndex, interval_minutes: int,
         return None
     minute = offset[np.flatnonzero(off_grid)[0]] % 60
     return (f"interval starts fall at minute {minute:g} of the hour, not on the "
-            f"{interval_minutes}-minute clock grid; check [input] time_marks = {time_marks!r}")
+            f"{interval_minutes}-minute clock grid; check [input] time_marks = {setting_text(time_marks)}")
 
 
 def inserted_runs(inserted: pd.DatetimeIndex, interval_minutes: int) -> tuple[tuple, int]:
@@ -607,7 +608,6 @@ def _month_day(year_start) -> tuple[int, int]:
             return month, day
         except ValueError:
             pass
-    from .config import setting_text
     raise ConfigError(f"[processing] year_start = {setting_text(year_start)} is not allowed: "
                       "expected a day of the year as "
                       "\"MM-DD\", e.g. \"07-01\" (29 February is not in every year)")

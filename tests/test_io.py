@@ -385,11 +385,11 @@ def test_site_latitude_out_of_range(tmp_path):
     ("utc_offset = 12.0\n", "", ConfigError, r"\[site\] utc_offset is missing"),
     ("time_marks = \"end\"\n", "", ConfigError, r"\[input\] time_marks is missing.*start"),
     ("time_marks = \"end\"", "time_marks = \"ending\"", ConfigError,
-     r"time_marks = 'ending': expected one of 'start', 'middle', 'end'; did you mean 'end'"),
+     r'time_marks = "ending": expected one of "start", "middle", "end"; did you mean "end"'),
     ("missing = [-9999, \"NA\"]", "missing = [true]", ConfigError, r"\[input\] missing"),
     ("missing = [-9999, \"NA\"]", "interval_minutes = 15", ConfigError,
      r"interval_minutes = 15: expected 30 or 60"),
-    ("missing = [-9999, \"NA\"]", "delimiter = \";;\"", ConfigError, r"delimiter = ';;'"),
+    ("missing = [-9999, \"NA\"]", "delimiter = \";;\"", ConfigError, r'delimiter = ";;"'),
     ("path = \"tower.csv\"", "path = 3", ConfigError, r"\[input\] path = 3"),
     ("ustar = \"u_fric\"", "ustar = \"t_air\"", ConfigError,
      r"file column 't_air' is mapped twice, to tair and to ustar"),
@@ -421,7 +421,7 @@ def test_missing_toml_and_invalid_toml(tmp_path):
 def test_unit_for_unread_variable(tmp_path):
     """A unit declared for a variable that is not read is a ConfigError."""
     path = _write(tmp_path / "t.csv", _records())
-    with pytest.raises(ConfigError, match=r"\[input.units\] tsoil = 'K' is given but no tsoil"):
+    with pytest.raises(ConfigError, match=r'\[input.units\] tsoil = "K" is given but no tsoil'):
         _read(path, units={"tsoil": "K"})
 
 
@@ -461,7 +461,7 @@ def test_missing_column_lists_file_columns(tmp_path):
     """A mapped column absent from the file names the entry, a near name and the columns."""
     path = _write(tmp_path / "t.csv", _records().rename(columns={"u_fric": "u_frict"}))
     with pytest.raises(MissingColumnError,
-                       match=r"\[input.columns\] ustar = 'u_fric'.*did you mean 'u_frict'.*"
+                       match=r'\[input.columns\] ustar = "u_fric".*did you mean \'u_frict\'.*'
                              r"the file has columns: 'stamp', 'co2_flux'"):
         _read(path)
 
@@ -480,7 +480,7 @@ def test_required_variable_not_mapped(tmp_path):
 def test_time_column_missing(tmp_path):
     """A wrong time column names [input] time_column."""
     path = _write(tmp_path / "t.csv", _records(), column="TIMESTAMP")
-    with pytest.raises(MissingColumnError, match=r"\[input\] time_column = 'stamp'"):
+    with pytest.raises(MissingColumnError, match=r'\[input\] time_column = "stamp"'):
         _read(path)
 
 
@@ -621,7 +621,7 @@ def test_unknown_unit(tmp_path):
 def test_time_marks_invalid(tmp_path):
     """An invalid time_marks lists the valid choices."""
     path = _write(tmp_path / "t.csv", _records())
-    with pytest.raises(ConfigError, match=r"time_marks = 'begin'.*'start', 'middle', 'end'"):
+    with pytest.raises(ConfigError, match=r'time_marks = "begin".*"start", "middle", "end"'):
         _read(path, time_marks="begin")
 
 
@@ -865,7 +865,7 @@ def test_glob_and_list_in_site_config(tmp_path):
     listed = read_site_config(listed_path)
     pd.testing.assert_frame_equal(listed.read()[0], plain.read()[0])
     assert globbed.input_sha256() != plain.input_sha256() == _sha256(tmp_path / "tower.csv")
-    with pytest.raises(ConfigError, match=r"\[input\] path = 'none_\*.csv' matches no file"):
+    with pytest.raises(ConfigError, match=r'\[input\] path = "none_\*.csv" matches no file'):
         read_site_config(_site_toml(tmp_path, csv="none_*.csv"))
 
 
@@ -984,7 +984,7 @@ def test_decimal_comma_and_semicolon(tmp_path):
     out.to_csv(tmp_path / "t.csv", index=False, sep=";", decimal=",")
     frame, _ = _read(tmp_path / "t.csv", delimiter=";", decimal=",")
     pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
-    with pytest.raises(ConfigError, match=r"\[input\] decimal = ',' is also the delimiter"):
+    with pytest.raises(ConfigError, match=r'\[input\] decimal = "," is also the delimiter'):
         _read(tmp_path / "t.csv", decimal=",")
 
 
@@ -1063,9 +1063,9 @@ def test_daylight_saving_errors(tmp_path):
     site = Site(name="x", latitude=50.0, longitude=10.0, utc_offset=1.0)
     with pytest.raises(TimestampError, match=r"line \d+ of '.*t.csv' has stamp '2021-03-28 "
                                              r"02:00', which does not exist in \[input\] "
-                                             r"time_zone = 'Europe/Berlin'"):
+                                             r'time_zone = "Europe/Berlin"'):
         _read(path, time_zone="Europe/Berlin", site=site)
-    with pytest.raises(ConfigError, match=r"time_zone = 'Europe/Berlni' is not a known"):
+    with pytest.raises(ConfigError, match=r'time_zone = "Europe/Berlni" is not a known'):
         _read(path, time_zone="Europe/Berlni", site=site)
     with pytest.raises(ConfigError, match=r"standard time UTC\+1 but \[site\] utc_offset = 2"):
         _read(path, time_zone="Europe/Berlin",
@@ -1088,7 +1088,7 @@ def test_flag_accept_and_two_flag_columns(tmp_path):
     expected = ((records["qc"] == 2) | (records["qc_gas"] == 4)).astype(float)
     np.testing.assert_array_equal(frame["nee_flag"], expected)
     assert report.columns["nee_flag"] == "qc + qc_gas"
-    with pytest.raises(ConfigError, match=r"\[input\] flag_accept = \['good'\]"):
+    with pytest.raises(ConfigError, match=r'\[input\] flag_accept = \["good"\]'):
         _read(path, columns=MAPPING | {"nee_flag": "qc"}, flag_accept=["good"])
 
 
@@ -1283,7 +1283,7 @@ def test_rg_in_kw_or_mj_refused(tmp_path, kind, unit, factor):
 def test_accept_units_setting_validated(tmp_path):
     """accept_units must list canonical variables."""
     records, site = _climate("grassland")
-    with pytest.raises(ConfigError, match=r"\[input\] accept_units = \['nnee'\]"):
+    with pytest.raises(ConfigError, match=r'\[input\] accept_units = \["nnee"\]'):
         _read(_write(tmp_path / "t.csv", records), site=site, accept_units=["nnee"])
 
 

@@ -171,7 +171,7 @@ def test_numeric_clocks_are_named_with_what_to_do(kind, minutes, named):
 
 def test_percent_s_format_says_unix_time_is_not_read():
     """time_format = "%s" (Unix time in some strftime dialects) names the way out."""
-    with pytest.raises(TimestampError, match=r"time_format = '%s' cannot be used.*Unix time"):
+    with pytest.raises(TimestampError, match=r'time_format = "%s" cannot be used.*Unix time'):
         _parse(_numeric_stamps("unix"), "%s", columns=("stamp",))
 
 
