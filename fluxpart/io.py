@@ -49,6 +49,7 @@ from .errors import (
     ImplausibleValueError,
     InputFileError,
     MissingColumnError,
+    UnitError,
 )
 from .site import Site
 from .timestamps import (
@@ -68,6 +69,7 @@ from .variables import (
     REQUIRED,
     VARIABLES,
     to_canonical,
+    units_for,
     vpd_from_rh,
 )
 
@@ -976,6 +978,12 @@ def _check_mapping(columns: dict, units: dict, flag_columns: tuple = ()) -> None
         raise ConfigError("[input.columns] storage is mapped but nee is not; map the turbulent "
                           "CO2 flux as nee (storage is added to it)")
     for name, unit in units.items():
+        if name in READER_VARIABLES and unit not in units_for(name):
+            same = [u for u in units_for(name) if u.lower() == str(unit).lower()]
+            if len(same) == 1:     # kpa for kPa: unit letters are case-sensitive (mPa, MPa)
+                raise UnitError(f"[input.units] {name} = {setting_text(unit)} is not a known "
+                                f"unit for {name}; did you mean {setting_text(same[0])}? (unit "
+                                "symbols are case-sensitive)")
         to_canonical(np.empty(0), name, unit, interval_minutes=30)  # UnitError lists units
 
 

@@ -1387,3 +1387,13 @@ def test_constant_nee_is_not_taken_for_a_unit_mixup(tmp_path):
     frame, report = _read(_write(tmp_path / "t.csv", records), site=site)
     assert (frame["nee"] == 0.01).all()
     assert not [w for w in report.warnings if w.startswith("nee")]
+
+
+def test_unit_in_the_wrong_letter_case_suggests_the_right_one(tmp_path):
+    """[input.units] vpd = "kpa" names "kPa" (fresh-eyes campaign: the list of units only);
+    not accepted silently, since unit symbols are case-sensitive (SI brochure, 9th ed., 5.2:
+    mPa and MPa differ by 1e9)."""
+    path = _site_toml(tmp_path, extra="[input.units]\nvpd = \"kpa\"\n")
+    with pytest.raises(UnitError, match=r'\[input.units\] vpd = "kpa" is not a known unit for '
+                                        r'vpd; did you mean "kPa"\? \(unit symbols are case'):
+        read_site_config(path)
