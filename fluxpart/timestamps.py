@@ -337,7 +337,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
         raise TimestampError(
             f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
-            f"{text.iloc[first]!r}, which does not match time_format = {time_format!r}; "
+            f"{text.iloc[first]!r}, which does not match time_format = {setting_text(time_format)}; "
             f"{int(failed.sum())} stamp(s) fail to parse{hint}")
     index = pd.DatetimeIndex(parsed)
     index, rounded = _round_to_minute(index)

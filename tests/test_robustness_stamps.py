@@ -61,7 +61,7 @@ def test_format_without_codes_gets_a_hint():
 
     from fluxpart.errors import TimestampError
 
-    with pytest.raises(TimestampError, match=r"time_format = 'YYYYMMDDhhmm'.*strptime code"):
+    with pytest.raises(TimestampError, match=r'time_format = "YYYYMMDDhhmm".*strptime code'):
         _parse(["202101010030", "202101010100"], "YYYYMMDDhhmm", columns=("stamp",))
 
 
