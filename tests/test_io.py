@@ -499,7 +499,7 @@ def test_unparsable_timestamp_names_row(tmp_path):
     text[7] = "garbage" + text[7][16:]
     path.write_text("\n".join(text) + "\n")
     with pytest.raises(TimestampError, match=r"line 4 of '.*t.csv' has stamp "
-                                             r"'2021/06/01 01:00'.*'%Y-%m-%d %H:%M'; 2 stamp"):
+                                             r"'2021/06/01 01:00'.*\"%Y-%m-%d %H:%M\"; 2 stamp"):
         _read(path)
 
 
