@@ -676,12 +676,17 @@ def _items(value) -> tuple:
 
 
 def _plain_numbers(config: Config) -> None:
-    """Replace NumPy scalars (a Python caller's np.float64, np.int64) by Python numbers.
+    """Replace NumPy scalars by Python numbers, and lists of tuple settings by tuples.
+
+    A Python caller may give np.float64, np.int64 or [16, 50, 84].
 
     NumPy is not imported here: ``import fluxpart`` and ``Config()`` stay light.
     """
     for field in fields(config):
         value = getattr(config, field.name)
+        if isinstance(value, list) and isinstance(field.default, tuple):
+            value = tuple(value)       # a Python caller's [16, 50, 84], as TOML arrays are
+            object.__setattr__(config, field.name, value)
         plain = tuple(_plain(v) for v in value) if isinstance(value, tuple) else _plain(value)
         if [type(v) for v in _items(plain)] != [type(v) for v in _items(value)]:
             object.__setattr__(config, field.name, plain)

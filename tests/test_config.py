@@ -331,3 +331,6 @@ def test_numpy_scalars_are_accepted_as_plain_numbers():
     assert type(config.rg_tolerance) is float and type(config.e0_min_points) is int
     assert type(config.e0_bounds[0]) is float
     assert json.loads(json.dumps(config.to_dict()))["e0_min_points"] == 8
+    listed = Config(e0_bounds=[40.0, 300.0], ustar_scenarios=[16, 84])
+    assert listed.e0_bounds == (40.0, 300.0) and listed.ustar_scenarios == (16, 84)
+    assert hash(listed) == hash(Config(e0_bounds=(40.0, 300.0), ustar_scenarios=(16, 84)))
