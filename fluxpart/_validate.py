@@ -84,7 +84,13 @@ def read_toml(path, what: str) -> dict:
     try:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as error:
-        raise ConfigError(f"{what} {str(path)!r} is not valid TOML: {error}") from None
+        hint = ""
+        if str(error).startswith(("Cannot overwrite a value", "Cannot declare")):
+            hint = "; a setting or [table] is given twice there: keep one"
+        elif path.suffix.lower() in (".csv", ".dat", ".txt", ".tsv"):
+            hint = (f"; {path.name} looks like a data file: give the site config (.toml), "
+                    "whose [input] path names the data")
+        raise ConfigError(f"{what} {str(path)!r} is not valid TOML: {error}{hint}") from None
 
 
 #: Leading bytes of file formats users give by mistake as a text table.

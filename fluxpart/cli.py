@@ -14,7 +14,7 @@ import warnings
 from pathlib import Path
 
 from . import __version__
-from .errors import FluxpartError, FluxpartWarning
+from .errors import ConfigError, FluxpartError, FluxpartWarning
 from .manifest import CAUTION
 
 __all__ = ["main"]
@@ -88,6 +88,9 @@ def _command_demo(args) -> int:
     from .config import Config
     from .pipeline import process
 
+    if args.seed < 0:
+        raise ConfigError(f"--seed {args.seed}: expected a whole number >= 0 (the seed of the "
+                          "demo data)")
     _check_output_folder(Path(args.out))
     frame, truth = demo.site_year(seed=args.seed)
     site = demo.site()

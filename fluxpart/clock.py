@@ -443,8 +443,9 @@ def check_hemisphere(index, rg, latitude, longitude, utc_offset, interval_minute
                                 "short record)")
     if np.nanmax(e) < MIN_DIURNAL_RANGE:
         return "cannot_judge", "hemisphere not judged: measured Rg shows no daylight"
-    spread = np.nanstd(np.log((e + 5.0) / (p + 5.0)))
-    spread_flipped = np.nanstd(np.log((e + 5.0) / (q + 5.0)))
+    with np.errstate(invalid="ignore"):   # a month of negative Rg (net radiation): NaN, skipped
+        spread = np.nanstd(np.log((e + 5.0) / (p + 5.0)))
+        spread_flipped = np.nanstd(np.log((e + 5.0) / (q + 5.0)))
     r_configured = _correlation(e, p)
     r_flipped = _correlation(e, q)
     lengths = months[months["used"]]

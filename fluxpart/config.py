@@ -9,13 +9,15 @@ nearest valid one.
 from __future__ import annotations
 
 import difflib
+import json
 import math
 from dataclasses import asdict, dataclass, fields
+from typing import NamedTuple
 
 from ._validate import read_toml
 from .errors import ConfigError
 
-__all__ = ["Config", "suggest_key"]
+__all__ = ["Config", "setting_text", "suggest_key"]
 
 
 @dataclass(frozen=True)
@@ -287,6 +289,20 @@ class Config:
         year starts) and gives ``period_start`` / ``period_end``. 29 February is
         refused (not in every year). u* thresholds and the annual E0 stay per
         calendar year of data.
+
+    Notes
+    -----
+    Every numeric setting has an allowed range (``_RANGES`` in this module), each
+    with its argument, which the error repeats: a bound refuses what no site or
+    method can mean (a typo, a unit slip, 1e9), not an unusual choice, and every
+    default lies well inside. For example a u* threshold or floor above 2 m s-1
+    (reported thresholds lie below about 1 m s-1, common practice (m)), tolerances
+    wider than the range they compare (Rg 200 W m-2, Tair 10 °C, VPD 20 hPa), a
+    window longer than a season, a count of records above every record of its
+    window at 30 min, a share or correlation above 1, ``e0_bounds`` above 1000 K
+    (a Q10 of about 15 at 10 °C) or fewer than 20 Monte Carlo draws (the standard
+    deviation itself then uncertain by more than 16 %). Errors show the value as
+    written in TOML and say what is allowed.
     """
 
     seed: int = 0
@@ -394,12 +410,17 @@ class Config:
         return out
 
 
-def suggest_key(key: str, valid) -> str:
-    """Return a ``"; did you mean 'x'?"`` hint for the nearest valid key, or a list."""
-    close = difflib.get_close_matches(key, list(valid), n=1, cutoff=0.5)
+def suggest_key(key: str, valid, what: str = "settings") -> str:
+    """Return a ``"; did you mean 'x'?"`` hint for the nearest valid key, or a list.
+
+    The same key in other letter case (``NEE`` for ``nee``) is the nearest of all.
+    """
+    valid = list(valid)
+    same = [v for v in valid if v.lower() == key.lower()]
+    close = same or difflib.get_close_matches(key, valid, n=1, cutoff=0.5)
     if close:
-        return f"; did you mean {close[0]!r}?"
-    return f"; valid settings: {', '.join(sorted(valid))}"
+        return f"; did you mean {close[0]!r}?" + (" (names are case-sensitive)" if same else "")
+    return f"; valid {what}: {', '.join(sorted(valid))}"
 
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
@@ -409,92 +430,347 @@ _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "ustar_method": ("moving_point", "change_point", "fixed"),
             "ustar_annual": ("median", "maximum"),
             "clock_check": ("refuse", "warn", "off")}
-_POSITIVE = ("night_rg_threshold", "rg_tolerance", "tair_tolerance", "vpd_tolerance",
-             "e0_window_days", "e0_window_step_days", "e0_min_temperature_range",
-             "e0_max_relative_error", "rref_window_days", "despike_z", "despike_block_days",
-             "gapfill_max_window_days", "daytime_window_days", "daytime_window_step_days",
-             "agreement_margin", "daytime_beta0_max", "ustar_plateau_share",
-             "ustar_correlation_limit", "ustar_plateau_reference", "random_error_rg_tolerance",
-             "random_error_tair_tolerance", "random_error_vpd_tolerance",
-             "daytime_consistency_z")
-_NON_NEGATIVE = ("ustar_threshold", "rg_margin", "rg_relative_margin",
-                 "gapfill_interpolation_hours", "ustar_min_resolution")
-_COUNTS = ("e0_min_points", "e0_best_windows", "rref_min_points", "daytime_min_points",
-           "daytime_k_min_points", "ustar_temperature_classes", "ustar_classes",
-           "random_error_draws", "gapfill_min_donors",
-           "daytime_night_min_points")
+
+
+class _Range(NamedTuple):
+    """Allowed values of one numeric setting and why (shown in the error)."""
+
+    low: float
+    high: float
+    unit: str
+    why: str
+    low_open: bool = False      # the low end itself is not allowed
+    whole: bool = False         # a whole number (a count)
+    allow_inf: bool = False     # inf (beyond `high`) is a documented value ("off")
+
+
+#: Records of one day at the shortest supported interval (30 min): a count of records
+#: in an n-day window above 48 n can never be met, so every window would be refused.
+_PER_DAY = 48
+
+#: The range of every numeric setting, with its argument. Bounds refuse values no
+#: site or method can mean (a typo, a unit slip, 1e9); the defaults lie well inside.
+#: Where a bound depends on another setting (a count of records in a window, a step
+#: within its window) it is checked in :func:`_check` after these.
+_RANGES = {
+    "night_rg_threshold": _Range(
+        0.0, 50.0, "W m-2", "night thresholds in use are 5-20 W m-2 (common practice, (m)); "
+        "above 50 W m-2 twilight records with photosynthesis would count as night",
+        low_open=True),
+    "despike_z": _Range(
+        2.0, 20.0, "", "Papale et al. (2006) use 4, 5.5 and 7 (m); below 2 ordinary "
+        "noise is cut as spikes (5 % of normal noise lies beyond 2 sigma), above 20 "
+        "nothing is ever cut"),
+    "despike_block_days": _Range(
+        1.0, 92.0, "days", "a block needs a day of records for its median and MAD; beyond "
+        "a season it mixes the noise of summer and winter"),
+    "rg_margin": _Range(
+        0.0, 500.0, "W m-2", "cloud edges raise Rg above clear-sky values by a few hundred "
+        "W m-2 at most (m); a wider margin would pass a clock hours off"),
+    "rg_relative_margin": _Range(
+        0.0, 1.0, "", "measured Rg never reaches twice the top-of-atmosphere radiation, so "
+        "a larger share checks nothing"),
+    "ustar_threshold": _Range(
+        0.0, 2.0, "m s-1", "reported u* thresholds lie below about 1 m s-1 (common practice, "
+        "(m)); above 2 m s-1 nearly every night would be rejected"),
+    "ustar_temperature_classes": _Range(
+        1, 20, "", "a season's night records (about 1000-2000 at 30 min) in more than 20 "
+        "temperature classes leave too few per u* class for a mean", whole=True),
+    "ustar_classes": _Range(
+        5, 50, "", "fewer than 5 classes cannot show a plateau above the threshold; more "
+        "than 50 leave a handful of records per class (Reichstein et al. 2005 use 20 (m))",
+        whole=True),
+    "ustar_plateau_share": _Range(
+        0.5, 1.0, "", "the threshold is where night NEE reaches its plateau (0.99, "
+        "Reichstein et al. 2005 (m)); below a half, half the flux would still be lost there"),
+    "ustar_correlation_limit": _Range(
+        0.0, 1.0, "", "a correlation |r| is at most 1; 1 turns the check off",
+        low_open=True),
+    "ustar_min_resolution": _Range(
+        0.0, 20.0, "standard errors", "0 turns the check off; beyond 20 no night flux "
+        "resolves and every season falls to one temperature class"),
+    "ustar_plateau_reference": _Range(
+        0.0, 1.0, "", "a share of the u* classes; 1 compares with all classes above",
+        low_open=True),
+    "ustar_min_threshold": _Range(
+        0.0, 2.0, "m s-1", "reported u* thresholds lie below about 1 m s-1 (common practice, "
+        "(m)); a floor above 2 m s-1 would reject nearly every night"),
+    "ustar_bootstrap_draws": _Range(
+        0, 10000, "", "0 skips the bootstrap; below 10 draws the 16th and 84th percentiles "
+        "are the extremes of the draws; beyond 10000 only run time grows", whole=True),
+    "gapfill_min_donors": _Range(
+        1, 14 * _PER_DAY, "records", "more than the 672 records of a 14-day window at "
+        "30 min can never be met", whole=True),
+    "gapfill_interpolation_hours": _Range(
+        0.0, 6.0, "hours", "0 turns it off; a straight line across more than 6 h cuts "
+        "through the daily maximum or minimum of temperature and VPD"),
+    "gapfill_max_window_days": _Range(
+        0.0, 183.0, "days", "a window of +-183 days already spans the whole year"),
+    "rg_tolerance": _Range(
+        0.0, 200.0, "W m-2", "Reichstein et al. (2005) use 50 W m-2; beyond 200 W m-2, a "
+        "fifth of clear-sky noon Rg, overcast and sunny records count as similar",
+        low_open=True),
+    "tair_tolerance": _Range(
+        0.0, 10.0, "°C", "Reichstein et al. (2005) use 2.5 °C; beyond 10 °C, about a "
+        "day's range (m), a cold morning and a warm afternoon count as similar",
+        low_open=True),
+    "vpd_tolerance": _Range(
+        0.0, 20.0, "hPa", "Reichstein et al. (2005) use 5 hPa; beyond 20 hPa, a hot dry "
+        "afternoon's VPD (m), every record counts as similar", low_open=True),
+    "e0_window_days": _Range(
+        1.0, 92.0, "days", "a window needs a night; beyond a season E0 reads the seasonal "
+        "course that short windows avoid (Reichstein et al. 2005)"),
+    "e0_window_step_days": _Range(
+        0.0, 92.0, "days", "at most the window length, or records between windows are "
+        "never used", low_open=True),
+    "e0_min_points": _Range(
+        3, 92 * _PER_DAY, "records", "E0 and Rref need 3 records for a residual",
+        whole=True),
+    "e0_min_temperature_range": _Range(
+        0.0, 25.0, "K", "Reichstein et al. (2005) use 5 K; night temperatures seldom span "
+        "more than 25 K in a few weeks (m), so a larger range refuses every window",
+        low_open=True),
+    "e0_max_relative_error": _Range(
+        0.0, 1.0, "", "a standard error as large as E0 itself cannot tell E0 from zero",
+        low_open=True),
+    "e0_best_windows": _Range(
+        1, 366, "windows", "at most one window a day in a year", whole=True),
+    "rref_window_days": _Range(
+        1.0, 31.0, "days", "a window needs a night; Rref follows the seasonal course of "
+        "respiration (4 days, Reichstein et al. 2005), which a month-long window flattens"),
+    "rref_min_points": _Range(
+        1, 31 * _PER_DAY, "records", "Rref with E0 fixed needs one record", whole=True),
+    "daytime_window_days": _Range(
+        1.0, 31.0, "days", "a window needs a day; the light response changes with the "
+        "season (4 days, Lasslop et al. 2010), which a month-long window flattens"),
+    "daytime_window_step_days": _Range(
+        0.0, 31.0, "days", "at most the window length, or records between windows are "
+        "never fitted", low_open=True),
+    "daytime_min_points": _Range(
+        5, 31 * _PER_DAY, "records", "the light response has 4 free parameters (alpha, "
+        "beta0, k, Rref), so a fit needs 5 records", whole=True),
+    "daytime_k_min_points": _Range(
+        1, 31 * _PER_DAY, "records", "a count of records", whole=True),
+    "daytime_beta0_max": _Range(
+        50.0, 1000.0, "µmol m-2 s-1", "Lasslop et al. (2010) use 250 (m); below 50 the "
+        "bound would cap the light-saturated uptake of productive crops (C4 maize beyond "
+        "60 (m)), above 1000 it bounds nothing"),
+    "daytime_consistency_z": _Range(
+        1.0, 10.0, "standard errors", "below 1 most windows whose respiration agrees "
+        "with their night data within noise would be refitted; beyond 10 (a chance below "
+        "1e-22) nothing is, so write inf to keep only the bound rules", allow_inf=True),
+    "daytime_night_min_points": _Range(
+        1, 31 * _PER_DAY, "records", "a count of records", whole=True),
+    "random_error_draws": _Range(
+        20, 100000, "", "below 20 draws the standard deviation itself is uncertain by more "
+        "than 16 % (1/sqrt(2 n)); beyond 100000 only run time grows", whole=True),
+    "random_error_rg_tolerance": _Range(
+        0.0, 200.0, "W m-2", "beyond 200 W m-2 overcast and sunny records would pair",
+        low_open=True),
+    "random_error_tair_tolerance": _Range(
+        0.0, 10.0, "°C", "beyond 10 °C a cold and a warm record would pair", low_open=True),
+    "random_error_vpd_tolerance": _Range(
+        0.0, 20.0, "hPa", "beyond 20 hPa a humid and a dry record would pair",
+        low_open=True),
+    "agreement_margin": _Range(
+        0.0, 1.0, "", "a difference as large as the mean (one method giving a third of the "
+        "other) is a disagreement at any site", low_open=True),
+}
+
+#: E0 [K] above which no respiration is meant: 1000 K gives a Q10 of about 15 at 10 °C,
+#: where soil and ecosystem respiration show Q10 of about 1.5-4 (Lloyd & Taylor 1994 (m)).
+_E0_HIGHEST = 1000.0
 _PERCENTILES = (5, 16, 50, 84, 95)
+
+
+def setting_text(value) -> str:
+    """Show a setting's value as a user wrote it in TOML, not as a Python repr.
+
+    Text in double quotes, true/false, numbers without a type wrapper, lists in
+    brackets; NumPy scalars as the numbers they hold.
+
+    Examples
+    --------
+    >>> setting_text("soil"), setting_text(True), setting_text((5, 42)), setting_text(1e9)
+    ('"soil"', 'true', '[5, 42]', '1000000000.0')
+    """
+    value = _plain(value)
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, str):
+        return json.dumps(value, ensure_ascii=False)
+    if isinstance(value, int):
+        return str(value)
+    if isinstance(value, float):
+        number = float(value)
+        return "nan" if math.isnan(number) else ("inf" if number == math.inf else
+                                                 "-inf" if number == -math.inf else repr(number))
+    if isinstance(value, (list, tuple)) or type(value).__name__ == "ndarray":
+        return "[" + ", ".join(setting_text(v) for v in value) + "]"
+    if value is None:
+        return "nothing"
+    if isinstance(value, dict):
+        return "a table {" + ", ".join(f"{k} = {setting_text(v)}" for k, v in value.items()) + "}"
+    return str(value)
+
+
+def _choices_text(choices) -> str:
+    """``"a", "b" or "c"``."""
+    quoted = [setting_text(c) for c in choices]
+    return ", ".join(quoted[:-1]) + f" or {quoted[-1]}" if len(quoted) > 1 else quoted[0]
+
+
+def _number_text(number: float) -> str:
+    return f"{number:g}" if number != math.inf else "inf"
+
+
+def _refuse(name: str, value, expected: str, problem: str = "") -> None:
+    """Raise the one-line error: the setting, what was found, what is allowed."""
+    found = setting_text(value)
+    wants_number = expected.startswith(("a number", "a whole number", "0 (", "at most"))
+    if problem:
+        pass
+    elif isinstance(value, str) and wants_number:
+        problem = "is text"
+        expected = expected.replace(";", ", written without quotes;", 1)
+    elif isinstance(value, (int, float)) and not isinstance(value, bool) and wants_number:
+        problem = ("is not a whole number" if expected.startswith(("a whole", "0 ("))
+                   and not isinstance(value, int) else "is out of range")
+    else:
+        problem = "is not allowed"
+    raise ConfigError(f"[processing] {name} = {found} {problem}: expected {expected}")
+
+
+def _expected_range(rule: _Range) -> str:
+    kind = "a whole number" if rule.whole else "a number"
+    unit = f" {rule.unit}" if rule.unit else ""
+    if rule.low_open:
+        span = f"above {_number_text(rule.low)} and at most {_number_text(rule.high)}{unit}"
+    else:
+        span = f"from {_number_text(rule.low)} to {_number_text(rule.high)}{unit}"
+    return f"{kind} {span}; {rule.why}"
+
+
+def _check_range(name: str, value, rule: _Range) -> None:
+    if rule.whole:
+        ok = isinstance(value, int) and not isinstance(value, bool)
+    else:
+        ok = (isinstance(value, (int, float)) and not isinstance(value, bool)
+              and not math.isnan(value) and (math.isfinite(value) or rule.allow_inf))
+    if ok:
+        ok = ((value > rule.low if rule.low_open else value >= rule.low)
+              and (value <= rule.high or rule.allow_inf and value == math.inf))
+    if not ok:
+        _refuse(name, value, _expected_range(rule))
+
+
+def _plain(value):
+    """A NumPy scalar (np.float64, np.int64, np.bool_) as the Python value it holds."""
+    if type(value).__module__ == "numpy" and getattr(value, "shape", None) == ():
+        return value.item()
+    return value
+
+
+def _items(value) -> tuple:
+    return value if isinstance(value, tuple) else (value,)
+
+
+def _plain_numbers(config: Config) -> None:
+    """Replace NumPy scalars by Python numbers, and lists of tuple settings by tuples.
+
+    A Python caller may give np.float64, np.int64 or [16, 50, 84].
+
+    NumPy is not imported here: ``import fluxpart`` and ``Config()`` stay light.
+    """
+    for field in fields(config):
+        value = getattr(config, field.name)
+        if isinstance(value, list) and isinstance(field.default, tuple):
+            value = tuple(value)       # a Python caller's [16, 50, 84], as TOML arrays are
+            object.__setattr__(config, field.name, value)
+        plain = tuple(_plain(v) for v in value) if isinstance(value, tuple) else _plain(value)
+        if [type(v) for v in _items(plain)] != [type(v) for v in _items(value)]:
+            object.__setattr__(config, field.name, plain)
+
+
+def _check(config: Config) -> None:
+    _plain_numbers(config)
+    seed = config.seed
+    if not isinstance(seed, int) or isinstance(seed, bool) or seed < 0:
+        _refuse("seed", seed, "a whole number >= 0; the seed of every random draw")
+    from .timestamps import _month_day
+    _month_day(config.year_start)  # ConfigError naming [processing] year_start
+    for name, choices in _CHOICES.items():
+        value = getattr(config, name)
+        if not isinstance(value, str) or value not in choices:
+            _refuse(name, value, f"one of {_choices_text(choices)}")
+    for name, rule in _RANGES.items():
+        value = getattr(config, name)
+        if name == "ustar_min_threshold" and value is None:
+            continue
+        if name == "ustar_bootstrap_draws" and value == 0 and not isinstance(value, bool):
+            continue
+        if name == "ustar_bootstrap_draws" and isinstance(value, int) and 0 < value < 10:
+            _refuse(name, value, f"0 (no bootstrap) or a whole number from 10 to 10000; "
+                    f"{rule.why}")
+        _check_range(name, value, rule)
+    for window, step in (("e0_window_days", "e0_window_step_days"),
+                         ("daytime_window_days", "daytime_window_step_days")):
+        if getattr(config, step) > getattr(config, window):
+            _refuse(step, getattr(config, step),
+                    f"at most {window} = {setting_text(getattr(config, window))} days: records "
+                    "between windows would never be used")
+    for count, window in (("e0_min_points", "e0_window_days"),
+                          ("rref_min_points", "rref_window_days"),
+                          ("daytime_min_points", "daytime_window_days"),
+                          ("daytime_k_min_points", "daytime_window_days"),
+                          ("daytime_night_min_points", "daytime_window_days")):
+        days = getattr(config, window)
+        most = int(_PER_DAY * days)
+        if getattr(config, count) > most:
+            _refuse(count, getattr(config, count),
+                    f"at most {most}, every record of a {window} = {setting_text(days)} window "
+                    "at 30 min; more can never be met, so every window would be refused")
+    scenarios = config.ustar_scenarios
+    if (isinstance(scenarios, tuple) and all(_is_number(p) for p in scenarios)
+            and list(scenarios) != sorted(scenarios)):
+        _refuse("ustar_scenarios", scenarios, "percentiles in increasing order, e.g. [16, 50, 84]")
+    if (not isinstance(scenarios, tuple) or len(set(scenarios)) != len(scenarios)
+            or any(not isinstance(p, int) or isinstance(p, bool) or p not in _PERCENTILES
+                   for p in scenarios)):
+        _refuse("ustar_scenarios", scenarios, "a list of distinct bootstrap percentiles from "
+                f"{setting_text(_PERCENTILES)}, or [] for none")
+    low_high = config.e0_bounds
+    if (not isinstance(low_high, tuple) or len(low_high) != 2
+            or not all(_is_number(v) for v in low_high)
+            or not 0 < low_high[0] < low_high[1] <= _E0_HIGHEST):
+        _refuse("e0_bounds", low_high, f"[low, high] in K with 0 < low < high <= "
+                f"{_E0_HIGHEST:g}; E0 = {_E0_HIGHEST:g} K is a Q10 of about 15 at 10 °C, "
+                "where respiration shows 1.5-4 (m)")
+    curvature = config.daytime_curvature
+    if not (curvature == "fit" or (_is_number(curvature) and 0 <= curvature < 1)):
+        _refuse("daytime_curvature", curvature, "\"fit\" or a number from 0 (the rectangular "
+                "hyperbola) up to, not including, 1",
+                problem="is out of range" if _is_number(curvature) else "")
+    if not isinstance(config.daytime_night_in_fit, bool):
+        _refuse("daytime_night_in_fit", config.daytime_night_in_fit, "true or false")
+    widths = config.daytime_e0_window_days
+    if (not isinstance(widths, tuple) or not widths
+            or not all(_is_number(w) and 1 <= w <= 92 for w in widths)
+            or list(widths) != sorted(set(widths))):
+        _refuse("daytime_e0_window_days", widths, "a list of increasing widths from 1 to 92 "
+                "days, e.g. [4, 8, 16]; a window needs a night, and beyond a season E0 reads "
+                "the seasonal course")
+    fallback = config.e0_fallback
+    if fallback is not None and (not _is_number(fallback) or fallback <= 0):
+        _refuse("e0_fallback", fallback, "a positive number of K inside e0_bounds, or leave it "
+                "out", problem="is out of range" if _is_number(fallback) else "")
+    if fallback is not None and isinstance(low_high, tuple) and not (
+            low_high[0] <= fallback <= low_high[1]):
+        _refuse("e0_fallback", fallback, f"a value inside e0_bounds = {setting_text(low_high)} "
+                "K, the range a fitted E0 must lie in", problem="is out of range")
 
 
 def _is_number(value) -> bool:
     """A finite int or float (TOML's nan and inf are never a valid setting)."""
     return (isinstance(value, (int, float)) and not isinstance(value, bool)
             and math.isfinite(value))
-
-
-def _check(config: Config) -> None:
-    if not isinstance(config.seed, int) or isinstance(config.seed, bool) or config.seed < 0:
-        raise ConfigError(f"[processing] seed = {config.seed!r}: expected a non-negative integer")
-    from .timestamps import _month_day
-    _month_day(config.year_start)  # ConfigError naming [processing] year_start
-    for name, choices in _CHOICES.items():
-        value = getattr(config, name)
-        if value not in choices:
-            raise ConfigError(f"[processing] {name} = {value!r}: expected one of "
-                              f"{', '.join(repr(c) for c in choices)}")
-    for name in _POSITIVE + _NON_NEGATIVE:
-        value = getattr(config, name)
-        if not _is_number(value) or value < 0 or (name in _POSITIVE and value == 0):
-            kind = "a positive number" if name in _POSITIVE else "a number >= 0"
-            raise ConfigError(f"[processing] {name} = {value!r}: expected {kind}")
-    for name in _COUNTS:
-        value = getattr(config, name)
-        if not isinstance(value, int) or isinstance(value, bool) or value < 1:
-            raise ConfigError(f"[processing] {name} = {value!r}: expected a whole number >= 1")
-    if config.ustar_plateau_reference > 1:
-        raise ConfigError(f"[processing] ustar_plateau_reference = "
-                          f"{config.ustar_plateau_reference!r}: expected a share in (0, 1]")
-    draws = config.ustar_bootstrap_draws
-    if not isinstance(draws, int) or isinstance(draws, bool) or draws < 0:
-        raise ConfigError(f"[processing] ustar_bootstrap_draws = {draws!r}: expected a whole "
-                          "number >= 0")
-    floor = config.ustar_min_threshold
-    if floor is not None and (not _is_number(floor) or not 0 <= floor < float("inf")):
-        raise ConfigError(f"[processing] ustar_min_threshold = {floor!r}: expected a number "
-                          ">= 0 [m s-1], or leave it out for the canopy's floor")
-    scenarios = config.ustar_scenarios
-    if (isinstance(scenarios, tuple) and all(_is_number(p) for p in scenarios)
-            and list(scenarios) != sorted(scenarios)):
-        raise ConfigError(f"[processing] ustar_scenarios = {list(scenarios)!r}: percentiles "
-                          "out of order; list them in increasing order, e.g. [16, 50, 84]")
-    if (not isinstance(scenarios, tuple) or len(set(scenarios)) != len(scenarios)
-            or any(not isinstance(p, int) or isinstance(p, bool) or p not in _PERCENTILES
-                   for p in scenarios)):
-        raise ConfigError(f"[processing] ustar_scenarios = {scenarios!r}: expected a list of "
-                          f"distinct whole-number bootstrap percentiles from {list(_PERCENTILES)}")
-    low_high = config.e0_bounds
-    if (not isinstance(low_high, tuple) or len(low_high) != 2
-            or not all(_is_number(v) for v in low_high) or not 0 < low_high[0] < low_high[1]):
-        raise ConfigError(f"[processing] e0_bounds = {low_high!r}: expected [low, high] in K "
-                          "with 0 < low < high")
-    curvature = config.daytime_curvature
-    if not (curvature == "fit" or (_is_number(curvature) and 0 <= curvature < 1)):
-        raise ConfigError(f"[processing] daytime_curvature = {curvature!r}: expected \"fit\" or "
-                          "a number from 0 (the rectangular hyperbola) up to, not including, 1")
-    if not isinstance(config.daytime_night_in_fit, bool):
-        raise ConfigError(f"[processing] daytime_night_in_fit = {config.daytime_night_in_fit!r}: "
-                          "expected true or false")
-    widths = config.daytime_e0_window_days
-    if (not isinstance(widths, tuple) or not widths
-            or not all(_is_number(w) and 0 < w < float("inf") for w in widths)
-            or list(widths) != sorted(set(widths))):
-        raise ConfigError(f"[processing] daytime_e0_window_days = {widths!r}: expected a list "
-                          "of increasing positive widths in days, e.g. [4, 8, 16]")
-    if config.e0_fallback is not None and (not _is_number(config.e0_fallback)
-                                           or config.e0_fallback <= 0):
-        raise ConfigError(f"[processing] e0_fallback = {config.e0_fallback!r}: expected a "
-                          "positive number of kelvin, or leave it out")
-    if (config.e0_fallback is not None and isinstance(low_high, tuple)
-            and not low_high[0] <= config.e0_fallback <= low_high[1]):
-        raise ConfigError(f"[processing] e0_fallback = {config.e0_fallback!r}: outside e0_bounds "
-                          f"{list(low_high)} K, the range a fitted E0 must lie in")

@@ -28,11 +28,13 @@ written.
 from __future__ import annotations
 
 import codecs
+import csv
 import difflib
 import glob
 import hashlib
 import io as _io
 import math
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -40,13 +42,14 @@ import numpy as np
 import pandas as pd
 
 from ._validate import read_toml, refuse_binary
-from .config import suggest_key
+from .config import setting_text, suggest_key
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
     ImplausibleValueError,
     InputFileError,
     MissingColumnError,
+    UnitError,
 )
 from .site import Site
 from .timestamps import (
@@ -66,6 +69,7 @@ from .variables import (
     REQUIRED,
     VARIABLES,
     to_canonical,
+    units_for,
     vpd_from_rh,
 )
 
@@ -491,7 +495,7 @@ def read_site_config(path) -> SiteConfig:
     input_paths = _resolve_paths(input_table["path"], path.parent)
     time_column = _check_time_column(input_table["time_column"])
     if not isinstance(input_table["time_format"], str) or not input_table["time_format"]:
-        raise ConfigError(f"[input] time_format = {input_table['time_format']!r}: expected a "
+        raise ConfigError(f"[input] time_format = {setting_text(input_table['time_format'])}: expected a "
                           "non-empty string such as \"%Y-%m-%d %H:%M\"")
     columns = _string_table(input_table["columns"], "[input.columns]")
     units = _string_table(input_table.get("units", {}), "[input.units]")
@@ -667,7 +671,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         raise ConfigError(f"unit_problems = {unit_problems!r}: expected 'refuse' or 'report'")
     preflight: list[str] | None = [] if unit_problems == "report" else None
     if not isinstance(time_format, str) or not time_format:
-        raise ConfigError(f"[input] time_format = {time_format!r}: expected a format string "
+        raise ConfigError(f"[input] time_format = {setting_text(time_format)}: expected a format string "
                           "such as '%Y-%m-%d %H:%M'")
     utc_offset = None if site is None else site.utc_offset
     if time_zone is not None:
@@ -677,21 +681,35 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
 
     warnings: list[str] = []
     parts, mapping = [], None
+    empty = []
     for path_ in paths:
-        part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
-                          time_columns=time_columns, time_format=time_format,
-                          missing=missing, delimiter=delimiter, decimal=decimal,
-                          encoding=encoding, rows_before_header=rows_before_header,
-                          rows_after_header=rows_after_header, time_zone=time_zone,
-                          utc_offset=utc_offset, warnings=warnings)
+        try:
+            part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
+                              time_columns=time_columns, time_format=time_format,
+                              missing=missing, delimiter=delimiter, decimal=decimal,
+                              encoding=encoding, rows_before_header=rows_before_header,
+                              rows_after_header=rows_after_header, time_zone=time_zone,
+                              utc_offset=utc_offset, warnings=warnings)
+        except _EmptyFileError as error:
+            # one of several files without records (a logger file opened at a power cut):
+            # it holds nothing to read, so the others are read and it is named
+            if len(paths) == 1:
+                raise
+            empty.append(str(path_))
+            warnings.append(f"input file {str(path_)!r} {error.what}: skipped (a logger file "
+                            "opened as the power failed?); the other input files were read")
+            continue
         found = (part["mapping"], part["flag_columns"])
         if mapping is not None and found != (mapping, flag_columns):
             raise InputFileError(f"{str(path_)!r} maps columns differently from "
-                                 f"{str(paths[0])!r} ({_describe_mapping(*found)} vs "
+                                 f"{parts[0]['source']!r} ({_describe_mapping(*found)} vs "
                                  f"{_describe_mapping(mapping, flag_columns)}); give every file "
                                  "the same columns or map them explicitly in [input.columns]")
         mapping, flag_columns = found
         parts.append(part)
+    if not parts:
+        raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
+                             f"{empty[0]!r}); check [input] path")
     combined = _combine(parts)
 
     stamps = combined["stamps"]
@@ -853,7 +871,16 @@ _INPUT_HELP = {
 def _check_keys(table: dict, valid, where: str, spell: str) -> None:
     for key in table:
         if key not in valid:
-            hint = suggest_key(key, valid)
+            if where == "site config: top-level table" and key in ("columns", "units"):
+                raise ConfigError(f"site config: the table [{key}] belongs under [input]: "
+                                  f"write it as [input.{key}]")
+            if isinstance(table[key], dict) and where.startswith("[") and spell == "{key}":
+                parent = where[1:-1]
+                tables = [v for v in valid if v in ("columns", "units")] or list(valid)
+                close = difflib.get_close_matches(key, tables, n=1, cutoff=0.5)
+                hint = f"; did you mean [{parent}.{close[0]}]?" if close else ""
+                raise ConfigError(f"table [{parent}.{key}] is unknown{hint}")
+            hint = suggest_key(key, valid, "keys" if "table" not in where else "tables")
             raise ConfigError(f"{where} {spell.format(key=key)} is unknown{hint}")
 
 
@@ -865,13 +892,13 @@ def _resolve_paths(value, folder: Path) -> tuple:
     found: list[Path] = []
     for item in items:
         if not isinstance(item, str) or not item.strip():
-            raise ConfigError(f"[input] path = {value!r}: expected a file path (a string, "
+            raise ConfigError(f"[input] path = {setting_text(value)}: expected a file path (a string, "
                               "relative to the site config), a list of them or a glob")
         if _GLOB_CHARACTERS & set(item):
             pattern = item if Path(item).is_absolute() else str(folder / item)
             matches = sorted(Path(p) for p in glob.glob(pattern) if Path(p).is_file())
             if not matches:
-                raise ConfigError(f"[input] path = {item!r} matches no file in "
+                raise ConfigError(f"[input] path = {setting_text(item)} matches no file in "
                                   f"{str(Path(pattern).parent)!r}")
             found.extend(matches)
         else:
@@ -893,10 +920,10 @@ def _as_paths(path) -> list:
 def _check_time_column(value) -> tuple:
     items = value if isinstance(value, (list, tuple)) else [value]
     if not items or any(not isinstance(item, str) or not item for item in items):
-        raise ConfigError(f"[input] time_column = {value!r}: expected a column name, or a "
+        raise ConfigError(f"[input] time_column = {setting_text(value)}: expected a column name, or a "
                           "list of columns joined with one space (e.g. [\"date\", \"time\"])")
     if len(set(items)) != len(items):
-        raise ConfigError(f"[input] time_column = {value!r} names a column twice")
+        raise ConfigError(f"[input] time_column = {setting_text(value)} names a column twice")
     return tuple(items)
 
 
@@ -910,10 +937,10 @@ def _split_flag_columns(columns) -> tuple[dict, tuple]:
         return columns, ()
     items = flags if isinstance(flags, (list, tuple)) else [flags]
     if not items or any(not isinstance(item, str) or not item for item in items):
-        raise ConfigError(f"[input.columns] nee_flag = {flags!r}: expected a column name or a "
+        raise ConfigError(f"[input.columns] nee_flag = {setting_text(flags)}: expected a column name or a "
                           "list of flag columns")
     if len(set(items)) != len(items):
-        raise ConfigError(f"[input.columns] nee_flag = {flags!r} names a column twice")
+        raise ConfigError(f"[input.columns] nee_flag = {setting_text(flags)} names a column twice")
     return columns, tuple(items)
 
 
@@ -924,13 +951,12 @@ def _string_table(table, where: str) -> dict:
     for key, value in table.items():
         if key not in READER_VARIABLES:
             raise ConfigError(f"{where} {key} is not a canonical variable"
-                              f"{suggest_key(key, READER_VARIABLES)} (valid: "
-                              f"{', '.join(READER_VARIABLES)})")
+                              f"{suggest_key(key, READER_VARIABLES, 'variables')}")
         if key == "nee_flag" and where == "[input.columns]" and isinstance(value, list):
             out[key] = value
             continue
         if not isinstance(value, str) or not value:
-            raise ConfigError(f"{where} {key} = {value!r}: expected a non-empty string")
+            raise ConfigError(f"{where} {key} = {setting_text(value)}: expected a non-empty string")
         out[key] = value
     return out
 
@@ -952,15 +978,21 @@ def _check_mapping(columns: dict, units: dict, flag_columns: tuple = ()) -> None
         raise ConfigError("[input.columns] storage is mapped but nee is not; map the turbulent "
                           "CO2 flux as nee (storage is added to it)")
     for name, unit in units.items():
+        if name in READER_VARIABLES and unit not in units_for(name):
+            same = [u for u in units_for(name) if u.lower() == str(unit).lower()]
+            if len(same) == 1:     # kpa for kPa: unit letters are case-sensitive (mPa, MPa)
+                raise UnitError(f"[input.units] {name} = {setting_text(unit)} is not a known "
+                                f"unit for {name}; did you mean {setting_text(same[0])}? (unit "
+                                "symbols are case-sensitive)")
         to_canonical(np.empty(0), name, unit, interval_minutes=30)  # UnitError lists units
 
 
 def _check_time_marks(value) -> str:
     if value not in TIME_MARKS:
         close = difflib.get_close_matches(str(value), TIME_MARKS, n=1, cutoff=0.4)
-        hint = f"; did you mean {close[0]!r}?" if close else ""
-        raise ConfigError(f"[input] time_marks = {value!r}: expected one of "
-                          f"{', '.join(repr(m) for m in TIME_MARKS)}{hint}")
+        hint = f"; did you mean {setting_text(close[0])}?" if close else ""
+        raise ConfigError(f"[input] time_marks = {setting_text(value)}: expected one of "
+                          f"{', '.join(setting_text(m) for m in TIME_MARKS)}{hint}")
     return value
 
 
@@ -968,7 +1000,7 @@ def _check_missing(value) -> tuple:
     if isinstance(value, (str, int, float)) and not isinstance(value, bool):
         value = [value]
     if not isinstance(value, (list, tuple)):
-        raise ConfigError(f"[input] missing = {value!r}: expected a list of codes, "
+        raise ConfigError(f"[input] missing = {setting_text(value)}: expected a list of codes, "
                           "e.g. missing = [-9999, \"NA\"]")
     for code in value:
         if isinstance(code, bool) or not isinstance(code, (str, int, float)):
@@ -980,16 +1012,16 @@ def _check_delimiter(value) -> str:
     if value == _WHITESPACE:
         return value
     if not isinstance(value, str) or len(value) != 1:
-        raise ConfigError(f"[input] delimiter = {value!r}: expected a single character such "
+        raise ConfigError(f"[input] delimiter = {setting_text(value)}: expected a single character such "
                           "as \",\", \";\" or \"\\t\", or \"whitespace\"")
     return value
 
 
 def _check_decimal(value, delimiter: str) -> str:
     if value not in (".", ","):
-        raise ConfigError(f"[input] decimal = {value!r}: expected \".\" or \",\"")
+        raise ConfigError(f"[input] decimal = {setting_text(value)}: expected \".\" or \",\"")
     if value == delimiter:
-        raise ConfigError(f"[input] decimal = {value!r} is also the delimiter; a file with "
+        raise ConfigError(f"[input] decimal = {setting_text(value)} is also the delimiter; a file with "
                           "decimal commas separates fields by another character: set "
                           "[input] delimiter = \";\" (or \"\\t\")")
     return value
@@ -999,19 +1031,19 @@ def _check_encoding(value):
     if value is None:
         return None
     if not isinstance(value, str) or not value:
-        raise ConfigError(f"[input] encoding = {value!r}: expected an encoding name such as "
+        raise ConfigError(f"[input] encoding = {setting_text(value)}: expected an encoding name such as "
                           "\"latin-1\" or \"utf-16\"")
     try:
         codecs.lookup(value)
     except LookupError:
-        raise ConfigError(f"[input] encoding = {value!r} is not a known text encoding; use "
+        raise ConfigError(f"[input] encoding = {setting_text(value)} is not a known text encoding; use "
                           "e.g. \"utf-8\", \"latin-1\", \"cp1252\" or \"utf-16\"") from None
     return value
 
 
 def _check_rows(value, name: str) -> int:
     if isinstance(value, bool) or not isinstance(value, int) or value < 0:
-        raise ConfigError(f"[input] {name} = {value!r}: expected a whole number of lines >= 0")
+        raise ConfigError(f"[input] {name} = {setting_text(value)}: expected a whole number of lines >= 0")
     return value
 
 
@@ -1020,7 +1052,7 @@ def _check_interval(value):
         return None
     if isinstance(value, bool) or not isinstance(value, (int, float)) \
             or value not in INTERVALS_MINUTES:
-        raise ConfigError(f"[input] interval_minutes = {value!r}: expected 30 or 60, "
+        raise ConfigError(f"[input] interval_minutes = {setting_text(value)}: expected 30 or 60, "
                           "or leave it out to infer it from the stamps")
     return int(value)
 
@@ -1031,7 +1063,7 @@ def _check_flag_accept(value) -> tuple:
     if (not isinstance(value, (list, tuple)) or not value
             or any(isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v)
                    for v in value)):
-        raise ConfigError(f"[input] flag_accept = {value!r}: expected a list of the flag "
+        raise ConfigError(f"[input] flag_accept = {setting_text(value)}: expected a list of the flag "
                           "values that keep a record, e.g. flag_accept = [0, 1]")
     return tuple(value)
 
@@ -1039,7 +1071,7 @@ def _check_flag_accept(value) -> tuple:
 def _check_accept_units(value) -> tuple:
     if not isinstance(value, (list, tuple)) or any(
             not isinstance(v, str) or v not in READER_VARIABLES for v in value):
-        raise ConfigError(f"[input] accept_units = {value!r}: expected a list of canonical "
+        raise ConfigError(f"[input] accept_units = {setting_text(value)}: expected a list of canonical "
                           f"variables ({', '.join(READER_VARIABLES)}) whose values are kept as "
                           "declared although they look like a unit mix-up")
     return tuple(value)
@@ -1105,9 +1137,26 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
     return text, ("utf-8" if encoding == "utf-8-sig" else encoding)
 
 
+class _EmptyFileError(InputFileError):
+    """An input file without records (0 bytes, blank, or a header only).
+
+    ``what`` says which, for the warning when the file is one of several and skipped.
+    """
+
+    def __init__(self, message: str, what: str):
+        super().__init__(message)
+        self.what = what
+
+
 def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
-               rows_after_header: int) -> tuple[pd.DataFrame, np.ndarray, list]:
-    """Every cell as text; return the non-blank rows, their line numbers, the header."""
+               rows_after_header: int, warnings=None) -> tuple[pd.DataFrame, np.ndarray, list]:
+    """Every cell as text; return the non-blank rows, their line numbers, the header.
+
+    A line with fewer fields than the header is a record cut short, its last value
+    possibly cut mid-number ("12.5" written as "1"): as the file's last line (a
+    logger stopped mid-write, a power cut) it is dropped with a note in `warnings`;
+    elsewhere it is an error naming the line. A line with more fields is an error.
+    """
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
     options = {"dtype": str, "keep_default_na": False, "na_filter": False}
@@ -1121,23 +1170,82 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
         header = pd.read_csv(_io.StringIO(text), header=None, nrows=1,
                              skiprows=rows_before_header, **options).iloc[0].tolist()
     except pd.errors.EmptyDataError:
-        raise InputFileError(f"input file {str(path)!r} is empty; expected a header line "
-                             "and records" + (f" after {rows_before_header} line(s) "
-                                              "(rows_before_header)"
-                                              if rows_before_header else "")) from None
+        raise _EmptyFileError(f"input file {str(path)!r} is empty; expected a header line "
+                              "and records" + (f" after {rows_before_header} line(s) "
+                                               "(rows_before_header)"
+                                               if rows_before_header else ""),
+                              "is empty" if not text else "holds only blank lines") from None
     except pd.errors.ParserError as error:
-        raise InputFileError(f"input file {str(path)!r} cannot be parsed with delimiter "
-                             f"{delimiter!r}: {' '.join(str(error).split())}") from None
+        raise InputFileError(_parser_message(path, delimiter, str(error))) from None
     blank = (raw.apply(lambda column: column.str.strip()) == "").all(axis=1).to_numpy() \
         if raw.shape[1] else np.ones(len(raw), dtype=bool)
     lines = np.arange(len(raw)) + rows_before_header + rows_after_header + 2
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
+    raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings)
     if raw.empty:
-        raise InputFileError(f"input file {str(path)!r} has a header but no records")
+        skipped_after = (f" after the {rows_after_header} line(s) of rows_after_header"
+                         if rows_after_header else "")
+        raise _EmptyFileError(f"input file {str(path)!r} has a header but no records"
+                              f"{skipped_after}", "has a header but no records")
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
     return raw, lines, [str(h).strip() for h in header]
+
+
+def _parser_message(path: Path, delimiter: str, error: str) -> str:
+    """The tokenizer's complaint as one plain line naming the file and line."""
+    found = re.search(r"Expected (\d+) fields in line (\d+), saw (\d+)", error)
+    if found:
+        expected, line, saw = found.groups()
+        return (f"input file {str(path)!r}: line {line} has {saw} fields where the header has "
+                f"{expected} (delimiter {delimiter!r}); a delimiter inside a value, or two "
+                "records run together after an interrupted write? Correct or delete that line "
+                "in a copy of the file")
+    return (f"input file {str(path)!r} cannot be parsed with delimiter {delimiter!r}: "
+            f"{' '.join(error.split())}")
+
+
+def _field_count(line: str, delimiter: str) -> int:
+    if delimiter == _WHITESPACE:
+        return len(line.split())
+    return len(next(csv.reader([line], delimiter=delimiter), []))
+
+
+def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndarray,
+                        delimiter: str, warnings) -> tuple[pd.DataFrame, np.ndarray]:
+    """Find lines with fewer fields than the header (read as empty cells by the parser)."""
+    if raw.empty or raw.shape[1] < 2:
+        return raw, lines
+    # a short line reads as "" in its last column; only those lines are counted
+    candidates = np.flatnonzero((raw.iloc[:, -1] == "").to_numpy())
+    if candidates.size == 0:
+        return raw, lines
+    text_lines = text.splitlines()
+    width = raw.shape[1]
+    short = [int(row) for row in candidates
+             if lines[row] - 1 < len(text_lines)
+             and _field_count(text_lines[lines[row] - 1], delimiter) < width]
+    if not short:
+        return raw, lines
+    last = len(raw) - 1
+    inner = [row for row in short if row != last]
+    if inner:
+        row = inner[0]
+        raise InputFileError(
+            f"input file {str(path)!r}: line {int(lines[row])} has "
+            f"{_field_count(text_lines[lines[row] - 1], delimiter)} fields where the header has "
+            f"{width}; a record cut short may hold a value cut mid-number; "
+            f"{len(inner)} such line(s) before the last. Complete or delete them in a copy of "
+            "the file (write missing values as empty cells between delimiters)")
+    fields = _field_count(text_lines[lines[last] - 1], delimiter)
+    note = (f"input file {str(path)!r}: its last line ({int(lines[last])}) has {fields} fields "
+            f"where the header has {width}, a record cut short (a logger stopped mid-write): "
+            "dropped")
+    if warnings is None:
+        raise InputFileError(note.replace(": dropped", "; delete that line"))
+    warnings.append(note)
+    return raw.iloc[:last].reset_index(drop=True), lines[:last]
 
 
 def _check_header_line(raw: pd.DataFrame, text: str, delimiter: str, time_columns: tuple,
@@ -1150,7 +1258,7 @@ def _check_header_line(raw: pd.DataFrame, text: str, delimiter: str, time_column
         cells = [cell.strip().strip('"') for cell in line.split(separator)]
         if number != rows_before_header and time_columns[0] in cells:
             raise MissingColumnError(
-                f"[input] time_column = {time_columns[0]!r} is not in the header read from "
+                f"[input] time_column = {setting_text(time_columns[0])} is not in the header read from "
                 f"line {rows_before_header + 1} of {str(path)!r} but on line {number + 1}: set "
                 f"[input] rows_before_header = {number}")
 
@@ -1165,7 +1273,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     """Read one file: its stamps in local standard time and the numbers of each column."""
     text, used_encoding = _decode(path, encoding)
     raw, lines, header = _read_text(path, text, delimiter, rows_before_header,
-                                    rows_after_header)
+                                    rows_after_header, warnings)
     _check_header_line(raw, text, delimiter, time_columns, rows_before_header, path)
     mapping, flag_columns = _resolve_columns(columns, units, list(raw.columns), header,
                                              time_columns, flag_columns, path)
@@ -1263,22 +1371,22 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
     """Canonical name -> file column in canonical order, and the flag columns; check them."""
     for time_column in time_columns:
         if time_column not in file_columns:
-            raise MissingColumnError(f"[input] time_column = {time_column!r}: no such column in "
+            raise MissingColumnError(f"[input] time_column = {setting_text(time_column)}: no such column in "
                                      f"{str(path)!r}{_near(time_column, file_columns)}; "
                                      f"{_columns_listing(file_columns)}")
     for column in flag_columns:
         if column not in file_columns:
-            raise MissingColumnError(f"[input.columns] nee_flag = {column!r}: no such column in "
+            raise MissingColumnError(f"[input.columns] nee_flag = {setting_text(column)}: no such column in "
                                      f"{str(path)!r}{_near(column, file_columns)}; "
                                      f"{_columns_listing(file_columns)}")
     mapping = {}
     for name, column in columns.items():
         if column not in file_columns:
-            raise MissingColumnError(f"[input.columns] {name} = {column!r}: no such column in "
+            raise MissingColumnError(f"[input.columns] {name} = {setting_text(column)}: no such column in "
                                      f"{str(path)!r}{_near(column, file_columns)}; "
                                      f"{_columns_listing(file_columns)}")
         if column in time_columns:
-            raise ConfigError(f"[input.columns] {name} = {column!r} is a time column")
+            raise ConfigError(f"[input.columns] {name} = {setting_text(column)} is a time column")
         mapping[name] = column
     used = set(mapping.values()) | set(time_columns) | set(flag_columns)
     for name in VARIABLES:
@@ -1302,7 +1410,7 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
                                      f"{_columns_listing(file_columns)}")
     for name in units:
         if name not in mapping:
-            raise ConfigError(f"[input.units] {name} = {units[name]!r} is given but no {name} "
+            raise ConfigError(f"[input.units] {name} = {setting_text(units[name])} is given but no {name} "
                               "column is read; map it in [input.columns] or remove the unit")
     # pandas renames repeated headers 'x', 'x.1', ...; a mapped name must be unambiguous
     duplicated = {h for h in header if header.count(h) > 1}
@@ -1327,15 +1435,19 @@ def _near(name: str, options: list) -> str:
     return f" (did you mean {close[0]!r}?)" if close else ""
 
 
+#: Delimiters a one-cell header may reveal: character, its name, the TOML value that sets it
+#: (a tab must be written "\t" in double quotes: in single quotes TOML keeps the backslash).
+_DELIMITER_HINTS = ((";", "semicolons", '";"'), ("\t", "tabs", '"\\t"'), (",", "commas", '","'),
+                    (" ", "spaces", '"whitespace"'), ("|", "vertical bars", '"|"'))
+
+
 def _columns_listing(file_columns: list) -> str:
-    listing = f"the file has columns: {', '.join(repr(c) for c in file_columns)}"
     if len(file_columns) == 1:
-        for candidate in (";", "\t", ",", " ", "|"):
+        for candidate, name, toml in _DELIMITER_HINTS:
             if candidate in str(file_columns[0]):
-                listing += (f"; the single header cell contains {candidate!r}: set [input] "
-                            f"delimiter = {candidate!r}")
-                break
-    return listing
+                return (f"the file's header is one cell holding {name}: set [input] "
+                        f"delimiter = {toml}")
+    return f"the file has columns: {', '.join(repr(c) for c in file_columns)}"
 
 
 # --------------------------------------------------------------------------- values

@@ -290,6 +290,14 @@ def _ustar(index, usable_night, latitude, config) -> tuple:
     return findings, years
 
 
+def _days_text(span_days: float, interval_minutes: float) -> str:
+    """``"200.5 days"``; near a whole year, the records short of it (365.0 would read whole)."""
+    short = int(round((365.0 - span_days) * 1440.0 / interval_minutes))
+    if span_days >= 364.95 and short > 0:
+        return f"{span_days:.2f} days ({short} record(s) short of 365 days)"
+    return f"{span_days:.1f} days"
+
+
 def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, rg_high,
               latitude: float, config, interval_minutes: float) -> list:
     """Find every condition that would make a stage fail or fall back.
@@ -365,7 +373,8 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     findings += ustar_findings
     if span_days < 365.0:
         findings.append(Finding("annual budget", (
-            f"the record covers {span_days:.1f} days, less than a year: its sums are partial "
+            f"the record covers {_days_text(span_days, interval_minutes)}, less than a year: "
+            "its sums are partial "
             "and are not annual totals"), False))
     rg_high = np.asarray(rg_high, dtype=bool)
     daylight = int((potential > 0).sum())

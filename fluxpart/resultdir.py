@@ -12,7 +12,7 @@ Writing (:func:`write_folder`):
 4. swap the staging folder in: on Linux one ``renameat2(RENAME_EXCHANGE)``
    system call exchanges the two folders atomically; elsewhere the old folder
    is renamed to ``.OUT.retired-*`` and the new one renamed to ``OUT``;
-5. remove the old folder.
+5. remove the old folder, then the lock file (see :func:`folder_lock`).
 
 A crash (kill -9, power cut, full disk) at any moment therefore leaves ``OUT``
 holding either the old complete result or the new complete one. The only
@@ -69,6 +69,8 @@ DEFAULT_LOCK_TIMEOUT = 600.0
 _STAGING = "staging-"
 _RETIRED = "retired-"
 _DIR_MODE = 0o755
+#: Times a writer that locked a deleted lock file locks again before it gives up checking.
+_RELOCK_TRIES = 5
 
 
 # --------------------------------------------------------------------------- names and lock
@@ -98,7 +100,8 @@ def _leftovers(directory: Path, kind: str) -> list[Path]:
 
 
 @contextmanager
-def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None):
+def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *,
+                remove: bool = False):
     """Hold the advisory lock of a result folder.
 
     Parameters
@@ -110,42 +113,104 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None):
     notify : callable, optional
         Called with one line of text when the lock is busy and we wait
         (default: printed to stderr).
+    remove : bool, optional
+        Delete the lock file when the block ends without an error (default False).
 
     Raises
     ------
     OutputError
         If the lock cannot be taken in time or the lock file cannot be created.
+
+    Notes
+    -----
+    Deleting a lock file races with a writer already waiting on it: that writer
+    then locks the deleted file while a third one creates and locks a new file
+    under the same name, and both write. So a lock is counted as held only when
+    the name still leads to the very file locked (compared by device and inode,
+    through filelock's ``on_acquired`` descriptor, filelock >= 3.30); otherwise
+    it is released and taken again. The file is deleted only while the lock is
+    held and only where that comparison was possible; elsewhere (an older
+    filelock, a file system without ``flock`` where filelock falls back to a
+    marker file it deletes itself) it stays, empty and harmless.
     """
-    from filelock import FileLock, Timeout
+    from filelock import FileLock
 
     path = lock_file(directory)
-    lock = FileLock(str(path))
+    locked: list = []           # the locked file's os.stat_result, from filelock's descriptor
+    try:
+        lock = FileLock(str(path), on_acquired=lambda fd: locked.append(os.fstat(fd)))
+    except TypeError:           # filelock < 3.30: no on_acquired; the lock file then stays
+        lock = FileLock(str(path))
     try:
         try:
-            lock.acquire(timeout=0)
-        except Timeout:
-            if timeout <= 0:
-                raise OutputError(f"{str(_absolute(directory))!r} is being written by another "
-                                  f"fluxpart process (lock file {str(path)!r}); wait for it to "
-                                  "finish or choose another output folder") from None
-            say = notify if notify is not None else (
-                lambda text: print(text, file=sys.stderr, flush=True))
-            say(f"note: another fluxpart process is writing {str(_absolute(directory))!r}; "
-                f"waiting up to {timeout:g} s for it (lock file {str(path)!r})")
-            try:
-                lock.acquire(timeout=timeout)
-            except Timeout:
-                raise OutputError(f"gave up after {timeout:g} s waiting for another fluxpart "
-                                  f"process writing {str(_absolute(directory))!r} (lock file "
-                                  f"{str(path)!r}); if no such process runs, delete the lock "
-                                  "file") from None
+            _acquire(lock, directory, path, timeout, notify)
+        except OSError as error:
+            if error.errno != errno.ENOSYS:
+                raise
+            # no flock here: filelock's marker-file fall-back, which needs no callback
+            # (and deletes its marker itself)
+            lock, locked = FileLock(str(path)), []
+            _acquire(lock, directory, path, timeout, notify)
+        for _ in range(_RELOCK_TRIES):
+            if not locked or _names_locked_file(path, locked[-1]):
+                break
+            lock.release()      # we locked a file deleted by the previous holder: again
+            _acquire(lock, directory, path, timeout, notify)
+        else:
+            # the name never led to the file locked (a file system without stable inode
+            # numbers?): hold the lock as filelock gives it, and never delete the file
+            locked.clear()
     except OSError as error:
         raise OutputError(f"cannot create the lock file {str(path)!r} beside the output folder: "
                           f"{error.strerror or error}; choose a writable output folder") from None
     try:
         yield path
+        if remove and locked and _names_locked_file(path, locked[-1]):
+            with _suppress_os_error():
+                path.unlink()
     finally:
         lock.release()
+
+
+def _acquire(lock, directory, path: Path, timeout: float, notify) -> None:
+    from filelock import Timeout
+
+    try:
+        lock.acquire(timeout=0)
+        return
+    except Timeout:
+        pass
+    if timeout <= 0:
+        raise OutputError(f"{str(_absolute(directory))!r} is being written by another "
+                          f"fluxpart process (lock file {str(path)!r}); wait for it to "
+                          "finish or choose another output folder") from None
+    say = notify if notify is not None else (
+        lambda text: print(text, file=sys.stderr, flush=True))
+    say(f"note: another fluxpart process is writing {str(_absolute(directory))!r}; "
+        f"waiting up to {timeout:g} s for it (lock file {str(path)!r})")
+    try:
+        lock.acquire(timeout=timeout)
+    except Timeout:
+        raise OutputError(f"gave up after {timeout:g} s waiting for another fluxpart "
+                          f"process writing {str(_absolute(directory))!r} (lock file "
+                          f"{str(path)!r}); if no such process runs, delete the lock "
+                          "file") from None
+
+
+def _names_locked_file(path: Path, locked: os.stat_result) -> bool:
+    """True while `path` leads to the file whose lock is held (not deleted or replaced)."""
+    try:
+        return os.path.samestat(os.stat(path), locked) and locked.st_nlink > 0
+    except OSError:
+        return False
+
+
+@contextmanager
+def _suppress_os_error():
+    try:
+        yield
+    except OSError:
+        pass
 
 
 def clean_leftovers(directory) -> list[str]:
@@ -352,7 +417,7 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
     except OSError as error:
         raise OutputError(f"cannot create the output folder's parent {str(directory.parent)!r}: "
                           f"{error.strerror or error}") from None
-    with folder_lock(directory, lock_timeout, notify):
+    with folder_lock(directory, lock_timeout, notify, remove=True):
         clean_leftovers(directory)
         reason = _is_replaceable(directory)
         if reason:

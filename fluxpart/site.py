@@ -51,21 +51,31 @@ class Site:
     canopy: str = "tall"
 
     def __post_init__(self):
+        from .config import setting_text
+        units = {"latitude": "degrees north (negative = south)",
+                 "longitude": "degrees east (negative = west)",
+                 "utc_offset": "hours from UTC of the file's local standard time"}
         for key, low, high in (("latitude", -90.0, 90.0), ("longitude", -180.0, 180.0),
                                ("utc_offset", -12.0, 14.0)):
             value = getattr(self, key)
+            if type(value).__module__ == "numpy" and getattr(value, "shape", None) == ():
+                value = value.item()
+            shown = setting_text(value)
             if isinstance(value, bool) or not isinstance(value, (int, float)):
-                raise ConfigError(f"[site] {key} = {value!r} is not a number; "
-                                  f"expected a number of degrees/hours in [{low:g}, {high:g}]")
+                raise ConfigError(f"[site] {key} = {shown} is not a number: expected a number "
+                                  f"from {low:g} to {high:g}, in {units[key]}"
+                                  + (", written without quotes" if isinstance(value, str)
+                                     else ""))
             if not math.isfinite(value) or not low <= value <= high:
-                raise ConfigError(f"[site] {key} = {value!r} is out of range; "
-                                  f"expected a value in [{low:g}, {high:g}]")
+                raise ConfigError(f"[site] {key} = {shown} is out of range: expected a value "
+                                  f"from {low:g} to {high:g}, in {units[key]}")
             object.__setattr__(self, key, float(value))
-        if self.canopy not in CANOPIES:
-            raise ConfigError(f"[site] canopy = {self.canopy!r}: expected one of "
-                              f"{', '.join(repr(c) for c in CANOPIES)}")
+        if not isinstance(self.canopy, str) or self.canopy not in CANOPIES:
+            raise ConfigError(f"[site] canopy = {setting_text(self.canopy)} is not allowed: "
+                              "expected \"short\" (crops, grass) or \"tall\" (forest)")
         if not isinstance(self.name, str) or not self.name.strip():
-            raise ConfigError(f"[site] name = {self.name!r}: expected a non-empty string")
+            raise ConfigError(f"[site] name = {setting_text(self.name)} is not allowed: expected "
+                              "the site's name as non-empty text")
 
     def to_dict(self) -> dict:
         """Return the site as a plain dict (for the manifest)."""

@@ -20,6 +20,7 @@ from datetime import datetime, timedelta
 import numpy as np
 import pandas as pd
 
+from .config import setting_text
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -107,8 +108,12 @@ def _to_datetime(text: pd.Series, time_format: str, utc: bool) -> pd.Series:
     try:
         return pd.to_datetime(text, format=time_format, errors="coerce", utc=utc)
     except (ValueError, TypeError) as error:
-        raise TimestampError(f"[input] time_format = {time_format!r} cannot be used: "
-                             f"{' '.join(str(error).split())}") from None
+        hint = ""
+        if "%s" in time_format:
+            hint = ("; %s (Unix time, seconds since 1970 UTC) is not read: write the column "
+                    "as dates and times in a copy of the file and set time_format to match")
+        raise TimestampError(f"[input] time_format = {setting_text(time_format)} cannot be used: "
+                             f"{' '.join(str(error).split())}{hint}") from None
 
 
 _CLOCK_FIELD = re.compile(r"%H%M(%S)?")
@@ -204,6 +209,45 @@ def _hour_24(text: pd.Series, failed: np.ndarray, time_format: str
     return rewritten, is_24
 
 
+#: Numeric clocks users export instead of dates: name, unit in seconds, epoch, plausible
+#: range of values (stamps of 1971-2100), how a spreadsheet or a logger writes them.
+_NUMERIC_CLOCKS = (
+    ("seconds since 1970-01-01 UTC (Unix time)", 1.0, "1970-01-01", (3.2e7, 4.11e9)),
+    ("milliseconds since 1970-01-01 UTC (Unix time)", 1e-3, "1970-01-01", (3.2e10, 4.11e12)),
+    ("spreadsheet day numbers (days since 1899-12-30, as Excel and LibreOffice count)",
+     86400.0, "1899-12-30", (26000.0, 73051.0)),
+)
+
+
+def _numeric_clock(text: pd.Series) -> str:
+    """Name a column of plain numbers that count time (Unix time, spreadsheet days), or "".
+
+    They are refused rather than read: Unix time is UTC while spreadsheet day numbers
+    carry whatever clock the sheet had, so either needs the user's word on the zone.
+    The test: every stamp a number in the clock's plausible range, and the median step
+    between stamps 30 or 60 minutes in its unit.
+    """
+    numbers = pd.to_numeric(text.str.strip(), errors="coerce").to_numpy(dtype=float)
+    if numbers.size < 3 or not np.isfinite(numbers).all():
+        return ""
+    step = np.median(np.diff(numbers))
+    for name, seconds, epoch, (low, high) in _NUMERIC_CLOCKS:
+        if not (low <= numbers.min() and numbers.max() <= high):
+            continue
+        minutes = step * seconds / 60.0
+        if not any(abs(minutes - m) < 0.01 for m in (30.0, 60.0)):
+            continue
+        first = pd.Timestamp(epoch) + pd.Timedelta(seconds=float(numbers[0]) * seconds)
+        zone = " UTC" if "UTC" in name else ""
+        return (f"the stamps are {name}, not dates ({text.iloc[0].strip()!r} is "
+                f"{first.round('min'):%Y-%m-%d %H:%M}{zone}), which fluxpart does not read: "
+                "write the column as dates and times in a copy of the file (e.g. 2021-06-01 "
+                "13:30; in a spreadsheet, format the column as yyyy-mm-dd hh:mm before saving "
+                "as CSV) and set [input] time_format to match"
+                + (", with [input] time_zone = \"UTC\" if you keep UTC" if zone else ""))
+    return ""
+
+
 def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, source: str,
                  lines: np.ndarray, utc_offset: float | None = None,
                  time_zone: str | None = None) -> ParsedStamps:
@@ -286,12 +330,14 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "rows_after_header = 1")
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
+        elif _numeric_clock(text):
+            hint = "; " + _numeric_clock(text)
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
         raise TimestampError(
             f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
-            f"{text.iloc[first]!r}, which does not match time_format = {time_format!r}; "
+            f"{text.iloc[first]!r}, which does not match time_format = {setting_text(time_format)}; "
             f"{int(failed.sum())} stamp(s) fail to parse{hint}")
     index = pd.DatetimeIndex(parsed)
     index, rounded = _round_to_minute(index)
@@ -341,12 +387,12 @@ def check_time_zone(time_zone, utc_offset: float, when=None) -> str:
     from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
     if not isinstance(time_zone, str) or not time_zone:
-        raise ConfigError(f"[input] time_zone = {time_zone!r}: expected a zone name such as "
+        raise ConfigError(f"[input] time_zone = {setting_text(time_zone)}: expected a zone name such as "
                           "\"Europe/Berlin\" or \"Australia/Sydney\"")
     try:
         zone = ZoneInfo(time_zone)
     except (ZoneInfoNotFoundError, ValueError, OSError):
-        raise ConfigError(f"[input] time_zone = {time_zone!r} is not a known time zone; use an "
+        raise ConfigError(f"[input] time_zone = {setting_text(time_zone)} is not a known time zone; use an "
                           "\"Area/City\" name such as \"Europe/Berlin\"") from None
     moment = pd.Timestamp(when if when is not None else "2020-01-01").to_pydatetime()
     hours = set()
@@ -364,7 +410,7 @@ def check_time_zone(time_zone, utc_offset: float, when=None) -> str:
         if time_zone.startswith("Etc/GMT"):
             posix = (f"; note that Etc/GMT zones carry the POSIX sign (\"Etc/GMT-1\" is UTC+1), "
                      f"so UTC{float(utc_offset):+g} is \"Etc/GMT{-float(utc_offset):+g}\"")
-        raise ConfigError(f"[input] time_zone = {time_zone!r} has standard time UTC{standard:+g} "
+        raise ConfigError(f"[input] time_zone = {setting_text(time_zone)} has standard time UTC{standard:+g} "
                           f"but [site] utc_offset = {float(utc_offset):g}; set utc_offset = "
                           f"{standard:g} (the offset without daylight saving){posix}")
     return time_zone
@@ -387,7 +433,7 @@ def _civil_to_standard(index: pd.DatetimeIndex, text: pd.Series, time_zone: str,
         bad = int(np.flatnonzero(aware.isna())[0])
         raise TimestampError(
             f"{_time_setting(time_columns)}: {_where(source, lines, bad)} has stamp "
-            f"{text.iloc[bad]!r}, which does not exist in [input] time_zone = {time_zone!r} "
+            f"{text.iloc[bad]!r}, which does not exist in [input] time_zone = {setting_text(time_zone)} "
             "(the hour skipped when clocks go forward); if the file is in standard time "
             "all year, remove time_zone") from None
     standard = aware.tz_convert("UTC").tz_localize(None) + pd.Timedelta(hours=float(utc_offset))
@@ -492,7 +538,7 @@ def clock_alignment_warning(starts: pd.DatetimeIndex, interval_minutes: int,
         return None
     minute = offset[np.flatnonzero(off_grid)[0]] % 60
     return (f"interval starts fall at minute {minute:g} of the hour, not on the "
-            f"{interval_minutes}-minute clock grid; check [input] time_marks = {time_marks!r}")
+            f"{interval_minutes}-minute clock grid; check [input] time_marks = {setting_text(time_marks)}")
 
 
 def inserted_runs(inserted: pd.DatetimeIndex, interval_minutes: int) -> tuple[tuple, int]:
@@ -562,6 +608,7 @@ def _month_day(year_start) -> tuple[int, int]:
             return month, day
         except ValueError:
             pass
-    raise ConfigError(f"[processing] year_start = {year_start!r}: expected a day of the year as "
+    raise ConfigError(f"[processing] year_start = {setting_text(year_start)} is not allowed: "
+                      "expected a day of the year as "
                       "\"MM-DD\", e.g. \"07-01\" (29 February is not in every year)")
 

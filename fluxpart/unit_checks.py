@@ -70,6 +70,14 @@ _SIGN_MIN_RELEASE = 3.0
 # Records in "warm and bright" conditions a mix-up check needs (our choice: half a
 # day of half-hours, so that one odd afternoon cannot decide).
 _MIN_ACTIVE_RECORDS = 24
+#: Median Rg [W m-2] of the records without sun below which the column is not global
+#: radiation: a pyranometer's night thermal offset is 0 to about -10 W m-2 (m), while net
+#: radiation at night is -30 to -100 W m-2 under a clear sky and near 0 under cloud (m).
+_NIGHT_RG_FLOOR = -20.0
+#: Median air temperature [°C] of 30 days that no place on Earth reaches: the warmest
+#: monthly means measured are about 39 °C (Death Valley in July (m)). Air temperature in
+#: °F read as °C passes it whenever a month is warmer than 5.6 °C (42 °F).
+_WARMEST_MONTH = 42.0
 # Usual band of the 90th percentile of |value| over a record, in the canonical unit,
 # used only to rank alternative units when several would make a column plausible
 # (our choice, common practice).
@@ -387,12 +395,47 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
     return None, text
 
 
+def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes: int):
+    """Air temperature in °F read as °C, where few values leave the plausible range.
+
+    At a cool site (summer maxima near 20 °C, 68 °F) fewer than 5 % of the °F values
+    exceed the 60 °C range limit, so the range check only warns, and the whole record
+    would be read 1.8 T + 32 degrees too warm. A month's median above 42 °C gives it away.
+    """
+    tair = converted.get("tair")
+    if tair is None or units.get("tair") not in (None, "°C", "degC"):
+        return None
+    per_block = int(30 * 1440 // interval_minutes)
+    blocks = tair.size // per_block
+    if blocks == 0:
+        return None
+    grid = np.asarray(tair[:blocks * per_block], dtype=float).reshape(blocks, per_block)
+    enough = np.isfinite(grid).sum(axis=1) >= (2 * per_block) // 3
+    if not enough.any():
+        return None
+    with np.errstate(invalid="ignore"):
+        warmest = float(np.nanmax(np.nanmedian(grid[enough], axis=1)))
+    if not _WARMEST_MONTH < warmest <= _WARMEST_MONTH * 9.0 / 5.0 + 32.0:
+        return None     # a plausible °C record, or beyond °F too (kelvin: the range check)
+    return (f"column {columns['tair']!r} (tair, read as °C): its warmest 30 days have a median "
+            f"of {warmest:.1f} °C, warmer than any month anywhere (about 39 °C at most); the "
+            f"values look like °F ({(warmest - 32.0) * 5.0 / 9.0:.1f} °C): set [input.units] "
+            "tair = \"°F\" (or list tair in [input] accept_units)")
+
+
 def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: int,
                 potential):
-    """Rg in kW m-2 or in MJ m-2 per interval read as W m-2."""
+    """Rg in kW m-2 or in MJ m-2 per interval read as W m-2, or net radiation mapped as Rg."""
     rg = converted.get("rg")
     if rg is None or potential is None or units.get("rg") not in (None, "W m-2", "W/m2"):
         return None
+    dark = (np.asarray(potential) <= 0.0) & np.isfinite(rg)
+    if dark.sum() >= _MIN_ACTIVE_RECORDS and np.median(rg[dark]) < _NIGHT_RG_FLOOR:
+        return (f"column {columns['rg']!r} (rg): with the sun down its median is "
+                f"{np.median(rg[dark]):.0f} W m-2, where a pyranometer reads about 0 (a few "
+                "W m-2 of thermal offset); the values look like net radiation (or a sensor "
+                "with a large offset): map global (incoming short-wave) radiation as rg "
+                "(or list rg in [input] accept_units)")
     bright = (np.asarray(potential) > 400.0) & np.isfinite(rg)
     if bright.sum() < _MIN_ACTIVE_RECORDS:
         return None
@@ -478,11 +521,15 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 refusals["nee"] = refuse
             if warn:
                 warnings.append(warn)
-        refuse, warn = _vpd_messages(converted, units, columns, interval_minutes)
+        refuse = _tair_message(converted, units, columns, interval_minutes)
         if refuse:
-            refusals["vpd"] = refuse
-        if warn:
-            warnings.append(warn)
+            refusals["tair"] = refuse
+        else:   # the VPD checks compare with the saturation at tair, so need a right tair
+            refuse, warn = _vpd_messages(converted, units, columns, interval_minutes)
+            if refuse:
+                refusals["vpd"] = refuse
+            if warn:
+                warnings.append(warn)
         refuse = _rg_message(converted, units, columns, interval_minutes, potential)
         if refuse:
             refusals["rg"] = refuse

@@ -3,6 +3,7 @@
 import dataclasses
 import json
 
+import numpy as np
 import pytest
 
 from fluxpart import Config, Site
@@ -68,6 +69,28 @@ def test_unknown_key_suggests_nearest(tmp_path):
         Config.from_toml(path)
 
 
+@pytest.mark.parametrize(("text", "hint"), [
+    ("[processing]\nseed = 1\nseed = 2\n", "given twice there: keep one"),
+    ("[processing]\nseed = 1\n[processing]\nseed = 2\n", "given twice there: keep one"),
+])
+def test_twice_given_setting_or_table_is_named(tmp_path, text, hint):
+    """A key or table written twice (TOML 1.0 forbids both) gets a plain hint after the
+    parser's line and column (fresh-eyes campaign: 'Cannot overwrite a value' alone)."""
+    path = tmp_path / "site.toml"
+    path.write_text(text, encoding="utf-8")
+    with pytest.raises(ConfigError, match=rf"not valid TOML: .*line \d+.*{hint}"):
+        Config.from_toml(path)
+
+
+def test_data_file_given_as_config_is_named(tmp_path):
+    """The CSV given where the site config belongs is named as a data file."""
+    path = tmp_path / "tower.csv"
+    path.write_text("stamp,nee\n202101010030,1.2\n", encoding="utf-8")
+    with pytest.raises(ConfigError, match=r"tower.csv looks like a data file: give the site "
+                                          r"config \(.toml\)"):
+        Config.from_toml(path)
+
+
 def test_suggest_key_without_close_match_lists_valid():
     """With no close match, suggest_key lists the valid keys."""
     assert "valid settings: alpha, beta" in suggest_key("zzz", ["beta", "alpha"])
@@ -87,36 +110,39 @@ def test_from_toml_missing_and_invalid(tmp_path):
 
 
 @pytest.mark.parametrize(("overrides", "pattern"), [
-    ({"seed": -1}, r"seed = -1.*non-negative integer"),
+    ({"seed": -1}, r"seed = -1 is out of range: expected a whole number >= 0"),
     ({"seed": 1.5}, r"seed = 1.5"),
-    ({"seed": True}, r"seed = True"),
-    ({"respiration_driver": "soil"}, r"respiration_driver = 'soil'.*'tair', 'tsoil'"),
-    ({"rg_tolerance": 0.0}, r"rg_tolerance = 0.0.*positive"),
-    ({"tair_tolerance": "2.5"}, r"tair_tolerance = '2.5'"),
-    ({"ustar_threshold": -0.1}, r"ustar_threshold = -0.1.*>= 0"),
+    ({"seed": True}, r"seed = true is not allowed"),
+    ({"respiration_driver": "soil"},
+     r'respiration_driver = "soil" is not allowed: expected one of "tair", "tsoil" or "auto"'),
+    ({"rg_tolerance": 0.0}, r"rg_tolerance = 0.0 is out of range.*above 0 and at most 200"),
+    ({"tair_tolerance": "2.5"}, r'tair_tolerance = "2.5" is text: .*written without quotes'),
+    ({"ustar_threshold": -0.1}, r"ustar_threshold = -0.1 is out of range.*from 0 to 2 m s-1"),
     ({"e0_min_points": 0}, r"e0_min_points = 0.*whole number"),
     ({"e0_best_windows": 2.0}, r"e0_best_windows = 2.0"),
     ({"e0_bounds": (450.0, 30.0)}, r"e0_bounds.*low < high"),
     ({"e0_bounds": (30.0,)}, r"e0_bounds"),
     ({"e0_fallback": -5.0}, r"e0_fallback = -5.0"),
-    ({"e0_fallback": 1e9}, r"e0_fallback = 1000000000.0: outside e0_bounds \[30.0, 450.0\]"),
-    ({"ustar_method": "movingpoint"}, r"ustar_method = 'movingpoint'.*'moving_point'"),
+    ({"e0_fallback": 1e9},
+     r"e0_fallback = 1000000000.0 is out of range: expected a value inside e0_bounds = "
+     r"\[30.0, 450.0\] K"),
+    ({"ustar_method": "movingpoint"}, r'ustar_method = "movingpoint".*"moving_point"'),
     ({"ustar_bootstrap_draws": -1}, r"ustar_bootstrap_draws = -1"),
-    ({"ustar_scenarios": (5, 42)}, r"ustar_scenarios = \(5, 42\).*percentiles"),
-    ({"ustar_scenarios": (84, 50, 16)}, r"ustar_scenarios = \[84, 50, 16\].*out of order"),
+    ({"ustar_scenarios": (5, 42)}, r"ustar_scenarios = \[5, 42\].*percentiles"),
+    ({"ustar_scenarios": (84, 50, 16)}, r"ustar_scenarios = \[84, 50, 16\].*increasing order"),
     ({"ustar_min_threshold": -0.1}, r"ustar_min_threshold = -0.1"),
-    ({"ustar_min_resolution": -1.0}, r"ustar_min_resolution = -1.0.*>= 0"),
-    ({"ustar_annual": "max"}, r"ustar_annual = 'max'.*'median', 'maximum'"),
-    ({"ustar_plateau_reference": 1.5}, r"ustar_plateau_reference = 1.5.*\(0, 1\]"),
-    ({"ustar_plateau_reference": 0.0}, r"ustar_plateau_reference = 0.0.*positive"),
-    ({"gapfill_donors": "twilight"}, r"gapfill_donors = 'twilight'.*'separate_day_night'"),
+    ({"ustar_min_resolution": -1.0}, r"ustar_min_resolution = -1.0.*from 0 to 20"),
+    ({"ustar_annual": "max"}, r'ustar_annual = "max".*"median" or "maximum"'),
+    ({"ustar_plateau_reference": 1.5}, r"ustar_plateau_reference = 1.5.*above 0 and at most 1"),
+    ({"ustar_plateau_reference": 0.0}, r"ustar_plateau_reference = 0.0.*above 0"),
+    ({"gapfill_donors": "twilight"}, r'gapfill_donors = "twilight".*"separate_day_night"'),
     ({"gapfill_interpolation_hours": -1.0}, r"gapfill_interpolation_hours = -1.0"),
     ({"gapfill_min_donors": 0}, r"gapfill_min_donors = 0.*whole number"),
     ({"daytime_min_points": 0}, r"daytime_min_points = 0"),
     # TOML reads nan and inf as floats; no setting is meaningful at either (review finding)
-    ({"tair_tolerance": float("nan")}, r"tair_tolerance = nan.*positive"),
+    ({"tair_tolerance": float("nan")}, r"tair_tolerance = nan is out of range.*above 0"),
     ({"night_rg_threshold": float("nan")}, r"night_rg_threshold = nan"),
-    ({"despike_z": float("inf")}, r"despike_z = inf.*positive"),
+    ({"despike_z": float("inf")}, r"despike_z = inf is out of range.*from 2 to 20"),
     ({"e0_bounds": (30.0, float("inf"))}, r"e0_bounds"),
 ])
 def test_bad_values_name_the_setting(overrides, pattern):
@@ -152,16 +178,18 @@ def test_site_accepts_southern_and_western_hemispheres():
 def test_site_canopy_is_short_or_tall():
     """[site] canopy accepts "short" or "tall" (default) and names the setting otherwise."""
     assert Site(name="x", latitude=0.0, longitude=0.0, canopy="short").canopy == "short"
-    with pytest.raises(ConfigError, match=r"\[site\] canopy = 'grass'.*'short', 'tall'"):
+    with pytest.raises(ConfigError, match=r'\[site\] canopy = "grass" is not allowed: '
+                                          r'expected "short" .* or "tall"'):
         Site(name="x", latitude=0.0, longitude=0.0, canopy="grass")
 
 
 @pytest.mark.parametrize(("kwargs", "pattern"), [
-    ({"latitude": 95.0}, r"\[site\] latitude = 95.0 is out of range.*\[-90, 90\]"),
+    ({"latitude": 95.0}, r"\[site\] latitude = 95.0 is out of range.*from -90 to 90, in "
+                         r"degrees north"),
     ({"latitude": -90.5}, r"\[site\] latitude"),
-    ({"longitude": 181.0}, r"\[site\] longitude = 181.0.*\[-180, 180\]"),
-    ({"utc_offset": 15.0}, r"\[site\] utc_offset = 15.0.*\[-12, 14\]"),
-    ({"latitude": "48N"}, r"\[site\] latitude = '48N' is not a number"),
+    ({"longitude": 181.0}, r"\[site\] longitude = 181.0.*from -180 to 180"),
+    ({"utc_offset": 15.0}, r"\[site\] utc_offset = 15.0.*from -12 to 14"),
+    ({"latitude": "48N"}, r'\[site\] latitude = "48N" is not a number: .*without quotes'),
     ({"latitude": float("nan")}, r"\[site\] latitude = nan"),
     ({"name": "  "}, r"\[site\] name"),
 ])
@@ -184,3 +212,125 @@ def test_site_config_reads_the_canopy(tmp_path):
                    if not line.startswith("canopy"))
     path.write_text(text, encoding="utf-8")
     assert read_site_config(path).site.canopy == "tall"
+
+
+_NUMERIC = [f.name for f in dataclasses.fields(Config)
+            if f.type in ("int", "float", "float | None") and f.name != "seed"]
+
+
+@pytest.mark.parametrize("name", _NUMERIC)
+@pytest.mark.parametrize("absurd", [1e9, -1.0, 10**9, -1])
+def test_every_numeric_setting_refuses_absurd_values(name, absurd):
+    """No numeric setting takes 1e9 or a negative value (robustness leftover 1: 1e9 m s-1 was
+    accepted as ustar_min_threshold); the error names the setting and the allowed range."""
+    with pytest.raises(ConfigError, match=rf"^\[processing\] {name} = {absurd!r} is (out of "
+                                          r"range|not a whole number): expected .*\d"):
+        Config(**{name: absurd})
+
+
+@pytest.mark.parametrize(("name", "edge", "beyond"), [
+    # common practice (m): reported u* thresholds lie below about 1 m s-1
+    ("ustar_min_threshold", 2.0, 2.01),
+    ("ustar_threshold", 2.0, 2.5),
+    # a correlation and a share of classes are at most 1 (definition)
+    ("ustar_correlation_limit", 1.0, 1.01),
+    ("ustar_plateau_share", 0.5, 0.49),
+    ("rg_relative_margin", 1.0, 1.5),
+    # a standard error as large as E0 cannot tell it from zero (definition of a 1-sigma error)
+    ("e0_max_relative_error", 1.0, 1.2),
+    # 4 free parameters of the light response (Lasslop et al. 2010, eq. 3 and 5 (m)) need 5 records
+    ("daytime_min_points", 5, 4),
+    # E0 and Rref (Lloyd & Taylor 1994, eq. 11) need 3 records for a residual
+    ("e0_min_points", 3, 2),
+    # 1/sqrt(2 n): the relative standard error of a standard deviation from n normal draws
+    ("random_error_draws", 20, 19),
+    ("ustar_bootstrap_draws", 10, 9),
+    ("ustar_bootstrap_draws", 10000, 10001),
+    ("gapfill_interpolation_hours", 6.0, 6.5),
+    ("night_rg_threshold", 50.0, 60.0),
+    # 10 standard errors: a two-sided normal chance of 1.5e-23; inf stays the documented "off"
+    ("daytime_consistency_z", 10.0, 11.0),
+])
+def test_bounds_hold_at_their_edge(name, edge, beyond):
+    """A bound's own value is accepted and the next value beyond it refused."""
+    assert getattr(Config(**{name: edge}), name) == edge
+    with pytest.raises(ConfigError, match=rf"\[processing\] {name} = {beyond!r} is out of range"):
+        Config(**{name: beyond})
+
+
+def test_consistency_z_keeps_inf_as_off():
+    """daytime_consistency_z = inf (documented: only the bound rules) stays accepted."""
+    assert Config(daytime_consistency_z=float("inf")).daytime_consistency_z == float("inf")
+
+
+def test_defaults_lie_inside_their_bounds():
+    """Every default passes its own range check (the bounds refuse absurd values, not choices)."""
+    from fluxpart.config import _RANGES
+
+    config = Config()
+    for name, rule in _RANGES.items():
+        value = getattr(config, name)
+        if value is None:
+            continue
+        assert rule.low < value < rule.high or (not rule.low_open and value == rule.low == 0), name
+
+
+def test_ranges_cover_every_numeric_setting():
+    """Each int or float setting has a documented range (or a special check for seed)."""
+    from fluxpart.config import _RANGES
+
+    assert set(_NUMERIC) - {"e0_fallback"} == set(_RANGES)  # e0_fallback: inside e0_bounds
+
+
+def test_counts_cannot_exceed_the_records_of_their_window():
+    """A count above every record of its window at 30 min (48 a day) can never be met."""
+    assert Config(rref_min_points=192, rref_window_days=4.0).rref_min_points == 192
+    with pytest.raises(ConfigError, match=r"rref_min_points = 193 is out of range: expected "
+                                          r"at most 192, every record of a rref_window_days"):
+        Config(rref_min_points=193)
+
+
+def test_window_step_at_most_the_window():
+    """A step longer than its window skips records (same rule as the daytime stage)."""
+    with pytest.raises(ConfigError, match=r"daytime_window_step_days = 5.0 is out of range: "
+                                          r"expected at most daytime_window_days = 4.0 days"):
+        Config(daytime_window_step_days=5.0)
+
+
+def test_e0_bounds_have_a_physical_ceiling():
+    """e0_bounds above 1000 K are refused: Lloyd & Taylor (1994, eq. 11) with E0 = 1000 K gives
+    Q10(10 °C) = exp(1000 (1/56.02 - 1/66.02)) ~ 14.9, where respiration shows 1.5-4 (m)."""
+    q10 = np.exp(1000.0 * (1 / (283.15 - 227.13) - 1 / (293.15 - 227.13)))
+    assert 14 < q10 < 16
+    with pytest.raises(ConfigError, match=r"e0_bounds = \[30.0, 2000.0\] is not allowed"):
+        Config(e0_bounds=(30.0, 2000.0))
+
+
+@pytest.mark.parametrize(("overrides", "shown"), [
+    ({"respiration_driver": "soil"}, '"soil"'),
+    ({"rg_tolerance": np.float64(1e9)}, "1000000000.0"),
+    ({"e0_min_points": np.int64(1)}, "= 1 "),
+    ({"ustar_scenarios": (5, 42)}, "[5, 42]"),
+    ({"daytime_night_in_fit": "yes"}, '"yes"'),
+    ({"e0_bounds": (np.float64(30.0), np.float64(2000.0))}, "[30.0, 2000.0]"),
+])
+def test_messages_show_values_as_written_in_toml(overrides, shown):
+    """Errors show the value as TOML text, never a Python repr (robustness leftover 2:
+    'abc', np.float64(...) and tuples were shown)."""
+    with pytest.raises(ConfigError) as caught:
+        Config(**overrides)
+    message = str(caught.value)
+    assert shown in message
+    assert "np." not in message and "'" not in message.split(":")[0] and "(5, 42)" not in message
+
+
+def test_numpy_scalars_are_accepted_as_plain_numbers():
+    """A Python caller's np.float64 / np.int64 settings are stored as float / int (JSON-able)."""
+    config = Config(rg_tolerance=np.float64(40.0), e0_min_points=np.int64(8),
+                    e0_bounds=(np.float64(40.0), 300.0))
+    assert type(config.rg_tolerance) is float and type(config.e0_min_points) is int
+    assert type(config.e0_bounds[0]) is float
+    assert json.loads(json.dumps(config.to_dict()))["e0_min_points"] == 8
+    listed = Config(e0_bounds=[40.0, 300.0], ustar_scenarios=[16, 84])
+    assert listed.e0_bounds == (40.0, 300.0) and listed.ustar_scenarios == (16, 84)
+    assert hash(listed) == hash(Config(e0_bounds=(40.0, 300.0), ustar_scenarios=(16, 84)))

@@ -282,7 +282,7 @@ def test_semicolon_delimiter(tmp_path):
     out.to_csv(path, index=False, sep=";")
     frame, _ = _read(path, delimiter=";")
     assert len(frame) == 96
-    with pytest.raises(MissingColumnError, match=r"delimiter = ';'"):
+    with pytest.raises(MissingColumnError, match=r'holding semicolons: set \[input\] delimiter = ";"'):
         _read(path)
 
 
@@ -348,6 +348,14 @@ def test_read_site_config_and_read_input(tmp_path):
                                       r"'time_column'"),
     ("columns", "ustr = \"x\"\n", r"\[input.columns\] ustr is not a canonical variable; did "
                                   r"you mean 'ustar'"),
+    # fresh-eyes campaign: the case slip got the whole list twice, the misplaced or misspelt
+    # table a list of 'settings'
+    ("columns", "USTAR = \"x\"\n", r"USTAR is not a canonical variable; did you mean 'ustar'\? "
+                                   r"\(names are case-sensitive\)$"),
+    ("top", "[units]\nvpd = \"kPa\"\n", r"the table \[units\] belongs under \[input\]: write "
+                                      r"it as \[input.units\]"),
+    ("top", "[input.column]\nnee = \"x\"\n", r"table \[input.column\] is unknown; did you mean "
+                                           r"\[input.columns\]\?"),
 ])
 def test_unknown_keys_suggest_nearest(tmp_path, where, text, pattern):
     """Unknown tables and keys raise ConfigError suggesting the nearest valid key."""
@@ -377,11 +385,11 @@ def test_site_latitude_out_of_range(tmp_path):
     ("utc_offset = 12.0\n", "", ConfigError, r"\[site\] utc_offset is missing"),
     ("time_marks = \"end\"\n", "", ConfigError, r"\[input\] time_marks is missing.*start"),
     ("time_marks = \"end\"", "time_marks = \"ending\"", ConfigError,
-     r"time_marks = 'ending': expected one of 'start', 'middle', 'end'; did you mean 'end'"),
+     r'time_marks = "ending": expected one of "start", "middle", "end"; did you mean "end"'),
     ("missing = [-9999, \"NA\"]", "missing = [true]", ConfigError, r"\[input\] missing"),
     ("missing = [-9999, \"NA\"]", "interval_minutes = 15", ConfigError,
      r"interval_minutes = 15: expected 30 or 60"),
-    ("missing = [-9999, \"NA\"]", "delimiter = \";;\"", ConfigError, r"delimiter = ';;'"),
+    ("missing = [-9999, \"NA\"]", "delimiter = \";;\"", ConfigError, r'delimiter = ";;"'),
     ("path = \"tower.csv\"", "path = 3", ConfigError, r"\[input\] path = 3"),
     ("ustar = \"u_fric\"", "ustar = \"t_air\"", ConfigError,
      r"file column 't_air' is mapped twice, to tair and to ustar"),
@@ -413,7 +421,7 @@ def test_missing_toml_and_invalid_toml(tmp_path):
 def test_unit_for_unread_variable(tmp_path):
     """A unit declared for a variable that is not read is a ConfigError."""
     path = _write(tmp_path / "t.csv", _records())
-    with pytest.raises(ConfigError, match=r"\[input.units\] tsoil = 'K' is given but no tsoil"):
+    with pytest.raises(ConfigError, match=r'\[input.units\] tsoil = "K" is given but no tsoil'):
         _read(path, units={"tsoil": "K"})
 
 
@@ -441,11 +449,19 @@ def test_empty_file_and_header_only(tmp_path):
         _read(header)
 
 
+def test_rows_after_header_past_the_records_is_named(tmp_path):
+    """rows_after_header larger than the file's records names the setting."""
+    path = _write(tmp_path / "t.csv", _records(periods=4))
+    with pytest.raises(InputFileError, match=r"t.csv' has a header but no records after the 9 "
+                                             r"line\(s\) of rows_after_header"):
+        _read(path, rows_after_header=9)
+
+
 def test_missing_column_lists_file_columns(tmp_path):
     """A mapped column absent from the file names the entry, a near name and the columns."""
     path = _write(tmp_path / "t.csv", _records().rename(columns={"u_fric": "u_frict"}))
     with pytest.raises(MissingColumnError,
-                       match=r"\[input.columns\] ustar = 'u_fric'.*did you mean 'u_frict'.*"
+                       match=r'\[input.columns\] ustar = "u_fric".*did you mean \'u_frict\'.*'
                              r"the file has columns: 'stamp', 'co2_flux'"):
         _read(path)
 
@@ -464,7 +480,7 @@ def test_required_variable_not_mapped(tmp_path):
 def test_time_column_missing(tmp_path):
     """A wrong time column names [input] time_column."""
     path = _write(tmp_path / "t.csv", _records(), column="TIMESTAMP")
-    with pytest.raises(MissingColumnError, match=r"\[input\] time_column = 'stamp'"):
+    with pytest.raises(MissingColumnError, match=r'\[input\] time_column = "stamp"'):
         _read(path)
 
 
@@ -483,7 +499,7 @@ def test_unparsable_timestamp_names_row(tmp_path):
     text[7] = "garbage" + text[7][16:]
     path.write_text("\n".join(text) + "\n")
     with pytest.raises(TimestampError, match=r"line 4 of '.*t.csv' has stamp "
-                                             r"'2021/06/01 01:00'.*'%Y-%m-%d %H:%M'; 2 stamp"):
+                                             r"'2021/06/01 01:00'.*\"%Y-%m-%d %H:%M\"; 2 stamp"):
         _read(path)
 
 
@@ -605,7 +621,7 @@ def test_unknown_unit(tmp_path):
 def test_time_marks_invalid(tmp_path):
     """An invalid time_marks lists the valid choices."""
     path = _write(tmp_path / "t.csv", _records())
-    with pytest.raises(ConfigError, match=r"time_marks = 'begin'.*'start', 'middle', 'end'"):
+    with pytest.raises(ConfigError, match=r'time_marks = "begin".*"start", "middle", "end"'):
         _read(path, time_marks="begin")
 
 
@@ -849,8 +865,74 @@ def test_glob_and_list_in_site_config(tmp_path):
     listed = read_site_config(listed_path)
     pd.testing.assert_frame_equal(listed.read()[0], plain.read()[0])
     assert globbed.input_sha256() != plain.input_sha256() == _sha256(tmp_path / "tower.csv")
-    with pytest.raises(ConfigError, match=r"\[input\] path = 'none_\*.csv' matches no file"):
+    with pytest.raises(ConfigError, match=r'\[input\] path = "none_\*.csv" matches no file'):
         read_site_config(_site_toml(tmp_path, csv="none_*.csv"))
+
+
+@pytest.mark.parametrize("content", ["", "\n\n", "stamp,co2_flux,sw_in,t_air,vpd_air,u_fric\n"])
+def test_empty_file_among_several_is_skipped_and_named(tmp_path, content):
+    """A 0-byte, blank or header-only file in a glob (a logger file opened as the power
+    failed) is skipped with a warning naming it; the others read as without it (robustness
+    leftover 3: it stopped the whole read). Alone, or all empty, it stays an error."""
+    records = _records(periods=200)
+    first = _write(tmp_path / "a.csv", records.iloc[:100])
+    second = _write(tmp_path / "c.csv", records.iloc[100:])
+    empty = tmp_path / "b.csv"
+    empty.write_text(content)
+    frame, report = _read([first, empty, second])
+    pd.testing.assert_frame_equal(frame, _read([first, second])[0])
+    named = [w for w in report.warnings if "b.csv" in w]
+    assert len(named) == 1 and "skipped" in named[0]
+    with pytest.raises(InputFileError, match="b.csv"):
+        _read(empty)
+    other = tmp_path / "d.csv"
+    other.write_text("")
+    with pytest.raises(InputFileError, match=r"every input file is empty \(2 files, e.g. "
+                                             r"'.*b.csv'\)"):
+        _read([empty, other])
+
+
+def test_last_line_cut_short_is_dropped_and_named(tmp_path):
+    """A last line with fewer fields than the header (a logger stopped mid-write) is dropped
+    with a warning naming file and line: its last value may be cut mid-number ("-0.405" written
+    as "-0") and was read before as a measured value (fresh-eyes campaign)."""
+    records = _records(periods=200)
+    path = _write(tmp_path / "t.csv", records)
+    text = path.read_text()
+    lines = text.splitlines()
+    cut = tmp_path / "cut.csv"
+    cut.write_text("\n".join(lines[:-1] + [lines[-1][:25]]))   # no final newline either
+    frame, report = _read(cut)
+    pd.testing.assert_frame_equal(frame, _read(path)[0].iloc[:-1], check_freq=False)
+    named = [w for w in report.warnings if "cut.csv" in w and "last line (201)" in w]
+    assert len(named) == 1 and "dropped" in named[0]
+
+
+def test_short_line_inside_a_file_is_an_error_naming_it(tmp_path):
+    """A line cut short before the last one is refused naming the line, not read as missing
+    values (its last value may be cut); a line with too many fields names the line plainly."""
+    records = _records(periods=200)
+    lines = _write(tmp_path / "t.csv", records).read_text().splitlines()
+    short = tmp_path / "short.csv"
+    short.write_text("\n".join(lines[:50] + [lines[50][:20]] + lines[51:]) + "\n")
+    with pytest.raises(InputFileError, match=r"'.*short.csv': line 51 has 2 fields where the "
+                                             r"header has \d+; a record cut short"):
+        _read(short)
+    long = tmp_path / "long.csv"
+    long.write_text("\n".join(lines[:50] + [lines[50] + ",7"] + lines[51:]) + "\n")
+    with pytest.raises(InputFileError, match=r"'.*long.csv': line 51 has \d+ fields where the "
+                                             r"header has \d+ \(delimiter ','\)"):
+        _read(long)
+
+
+def test_empty_last_cells_are_not_a_cut_line(tmp_path):
+    """A last line whose final cells are empty but delimited is complete: nothing dropped."""
+    records = _records(periods=200)
+    records.iloc[-1, -1] = np.nan
+    path = _write(tmp_path / "t.csv", records)
+    assert path.read_text().splitlines()[-1].endswith(",")
+    frame, report = _read(path)
+    assert len(frame) == 200 and not any("cut short" in w for w in report.warnings)
 
 
 def test_conflicting_overlap_names_both_files_and_lines(tmp_path):
@@ -902,7 +984,7 @@ def test_decimal_comma_and_semicolon(tmp_path):
     out.to_csv(tmp_path / "t.csv", index=False, sep=";", decimal=",")
     frame, _ = _read(tmp_path / "t.csv", delimiter=";", decimal=",")
     pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
-    with pytest.raises(ConfigError, match=r"\[input\] decimal = ',' is also the delimiter"):
+    with pytest.raises(ConfigError, match=r'\[input\] decimal = "," is also the delimiter'):
         _read(tmp_path / "t.csv", decimal=",")
 
 
@@ -981,9 +1063,9 @@ def test_daylight_saving_errors(tmp_path):
     site = Site(name="x", latitude=50.0, longitude=10.0, utc_offset=1.0)
     with pytest.raises(TimestampError, match=r"line \d+ of '.*t.csv' has stamp '2021-03-28 "
                                              r"02:00', which does not exist in \[input\] "
-                                             r"time_zone = 'Europe/Berlin'"):
+                                             r'time_zone = "Europe/Berlin"'):
         _read(path, time_zone="Europe/Berlin", site=site)
-    with pytest.raises(ConfigError, match=r"time_zone = 'Europe/Berlni' is not a known"):
+    with pytest.raises(ConfigError, match=r'time_zone = "Europe/Berlni" is not a known'):
         _read(path, time_zone="Europe/Berlni", site=site)
     with pytest.raises(ConfigError, match=r"standard time UTC\+1 but \[site\] utc_offset = 2"):
         _read(path, time_zone="Europe/Berlin",
@@ -1006,7 +1088,7 @@ def test_flag_accept_and_two_flag_columns(tmp_path):
     expected = ((records["qc"] == 2) | (records["qc_gas"] == 4)).astype(float)
     np.testing.assert_array_equal(frame["nee_flag"], expected)
     assert report.columns["nee_flag"] == "qc + qc_gas"
-    with pytest.raises(ConfigError, match=r"\[input\] flag_accept = \['good'\]"):
+    with pytest.raises(ConfigError, match=r'\[input\] flag_accept = \["good"\]'):
         _read(path, columns=MAPPING | {"nee_flag": "qc"}, flag_accept=["good"])
 
 
@@ -1201,7 +1283,7 @@ def test_rg_in_kw_or_mj_refused(tmp_path, kind, unit, factor):
 def test_accept_units_setting_validated(tmp_path):
     """accept_units must list canonical variables."""
     records, site = _climate("grassland")
-    with pytest.raises(ConfigError, match=r"\[input\] accept_units = \['nnee'\]"):
+    with pytest.raises(ConfigError, match=r'\[input\] accept_units = \["nnee"\]'):
         _read(_write(tmp_path / "t.csv", records), site=site, accept_units=["nnee"])
 
 
@@ -1305,3 +1387,13 @@ def test_constant_nee_is_not_taken_for_a_unit_mixup(tmp_path):
     frame, report = _read(_write(tmp_path / "t.csv", records), site=site)
     assert (frame["nee"] == 0.01).all()
     assert not [w for w in report.warnings if w.startswith("nee")]
+
+
+def test_unit_in_the_wrong_letter_case_suggests_the_right_one(tmp_path):
+    """[input.units] vpd = "kpa" names "kPa" (fresh-eyes campaign: the list of units only);
+    not accepted silently, since unit symbols are case-sensitive (SI brochure, 9th ed., 5.2:
+    mPa and MPa differ by 1e9)."""
+    path = _site_toml(tmp_path, extra="[input.units]\nvpd = \"kpa\"\n")
+    with pytest.raises(UnitError, match=r'\[input.units\] vpd = "kpa" is not a known unit for '
+                                        r'vpd; did you mean "kPa"\? \(unit symbols are case'):
+        read_site_config(path)

@@ -156,6 +156,66 @@ def test_second_writer_waits_says_so_or_gives_up(short_result, tmp_path):
                                   check_dtype=False)
 
 
+def test_successful_write_leaves_no_lock_file(short_result, tmp_path):
+    """After a successful write the empty .OUT.lock file is gone (robustness leftover 4: it
+    stayed beside every result folder); a lock held only for reading leaves it alone."""
+    out = tmp_path / "out"
+    short_result.write(out)
+    assert not resultdir.lock_file(out).exists()
+    short_result.write(out)                      # a rerun into the same folder, same again
+    assert not resultdir.lock_file(out).exists()
+    with folder_lock(out):
+        pass
+    assert resultdir.lock_file(out).exists()
+
+
+def test_lock_without_stable_inodes_is_kept_not_looped(tmp_path, monkeypatch):
+    """Where the lock file's name never compares equal to the locked file (a file system
+    without stable inode numbers), the lock is held after a few tries and the file kept."""
+    monkeypatch.setattr(resultdir, "_names_locked_file", lambda path, locked: False)
+    out = tmp_path / "out"
+    with folder_lock(out, remove=True):
+        assert resultdir.lock_file(out).exists()
+    assert resultdir.lock_file(out).exists()
+
+
+_WAITER = """
+import sys, time
+from pathlib import Path
+from fluxpart.resultdir import folder_lock
+out, flag = Path(sys.argv[1]), Path(sys.argv[2])
+with folder_lock(out, timeout=60, notify=lambda text: flag.with_suffix(".waiting").touch()):
+    flag.touch()
+    time.sleep(3.0)
+"""
+
+
+@pytest.mark.skipif(os.name != "posix", reason="flock semantics of POSIX")
+def test_removing_the_lock_file_keeps_writers_apart(tmp_path):
+    """The classic race of deleting a lock file: a writer waiting on the old file must not
+    hold the lock together with a newcomer who creates a new file under the same name.
+    Here the holder deletes the file while a second process waits; once that process holds
+    the lock, a third writer is still refused (mutual exclusion, the lock's only job)."""
+    out, flag = tmp_path / "out", tmp_path / "holds"
+    env = {**os.environ, "PYTHONPATH": os.pathsep.join(
+        [str(REPOSITORY), *filter(None, [os.environ.get("PYTHONPATH")])])}
+    with folder_lock(out, remove=True):
+        waiter = subprocess.Popen([sys.executable, "-c", _WAITER, str(out), str(flag)], env=env)
+        deadline = time.monotonic() + 60
+        while not flag.with_suffix(".waiting").exists() and time.monotonic() < deadline:
+            time.sleep(0.05)
+        assert flag.with_suffix(".waiting").exists(), "the second process never waited"
+        time.sleep(0.2)                           # it is now blocked on the old lock file
+    assert not resultdir.lock_file(out).exists() or waiter.poll() is None
+    while not flag.exists() and time.monotonic() < deadline:
+        time.sleep(0.02)
+    assert flag.exists() and waiter.poll() is None, "the waiting process did not take the lock"
+    with pytest.raises(OutputError, match="being written by another fluxpart process"):
+        with folder_lock(out, timeout=0):
+            pass
+    assert waiter.wait(timeout=60) == 0
+
+
 def test_rerun_with_fewer_tables_leaves_no_stale_table(short_result, tmp_path):
     """The folder is replaced whole: a table the new result lacks does not survive."""
     out = short_result.write(tmp_path / "out")

@@ -65,3 +65,11 @@ def test_export_into_result_folder_refused(tmp_path, capsys):
     assert status == 2
     assert len(err) == 1 and err[0].startswith("error: --netcdf")
     assert not (result / "site.nc").exists()
+
+
+def test_demo_negative_seed_names_the_option(tmp_path, capsys):
+    """demo --seed -1 names the option, not an inner 'seed = -1', and writes nothing."""
+    assert main(["demo", "--seed", "-1", "--out", str(tmp_path / "d"), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: --seed -1: expected a whole number >= 0")
+    assert not (tmp_path / "d").exists()

@@ -143,3 +143,32 @@ def test_text_site_flag_hint_does_not_suggest_missing(example, tmp_path, capsys)
     line = _one_error(capsys)
     assert "'qc_co2' (nee_flag)" in line and "flag_accept" in line
     assert "add it to [input] missing" not in line
+
+
+@pytest.mark.parametrize(("character", "name"), [("\t", "tabs"), (";", "semicolons")])
+def test_delimiter_hint_is_toml_that_works(example, tmp_path, capsys, character, name):
+    """A tab- or semicolon-separated file read with the default comma: the error's
+    `delimiter = ...` is valid TOML that reads the file (fresh-eyes campaign: the hint was
+    '\\t' in single quotes, which TOML keeps as a backslash and a t, and listed the header
+    as a Python repr). TOML 1.0: basic strings in double quotes process escapes, literal
+    strings in single quotes do not."""
+    import re
+    import tomllib
+
+    from fluxpart.io import read_config
+
+    data = tmp_path / "tower.csv"
+    data.write_text(example.with_suffix(".csv").read_text().replace(",", character))
+    text = example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', f'path = "{data.name}"')
+    config = tmp_path / "site.toml"
+    config.write_text(text, encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert f"header is one cell holding {name}" in line and "\\t'" not in line
+    setting = re.search(r"set \[input\] (delimiter = \S+)$", line)[1]
+    assert tomllib.loads(setting)["delimiter"] == character
+    config.write_text(text.replace("[input]\n", f"[input]\n{setting}\n", 1), encoding="utf-8")
+    frame, _ = read_config(config)
+    plain, _ = read_config(example)
+    assert frame.equals(plain)

@@ -8,7 +8,9 @@ from datetime import datetime, timedelta
 
 import numpy as np
 import pandas as pd
+import pytest
 
+from fluxpart.errors import TimestampError
 from fluxpart.timestamps import parse_stamps
 
 
@@ -59,7 +61,7 @@ def test_format_without_codes_gets_a_hint():
 
     from fluxpart.errors import TimestampError
 
-    with pytest.raises(TimestampError, match=r"time_format = 'YYYYMMDDhhmm'.*strptime code"):
+    with pytest.raises(TimestampError, match=r'time_format = "YYYYMMDDhhmm".*strptime code'):
         _parse(["202101010030", "202101010100"], "YYYYMMDDhhmm", columns=("stamp",))
 
 
@@ -139,3 +141,42 @@ def test_stamps_far_from_a_minute_not_rounded():
                           lines=np.arange(2, 4))
     assert parsed.rounded_to_minute == 0
     assert list(parsed.stamps) == [pd.Timestamp(t) for t in stamps_in]
+
+
+def _numeric_stamps(kind, start=datetime(2021, 6, 1, 0, 30), minutes=30, n=96):
+    """Stamps as Unix seconds or spreadsheet day numbers, computed with Python's datetime:
+    Unix time counts seconds from 1970-01-01 00:00 UTC (POSIX.1 definition of 'seconds since
+    the Epoch'); spreadsheet serials count days from 1899-12-30 (ECMA-376 Part 1, 18.17.4.1,
+    1900 date system, (m))."""
+    stamps = [start + timedelta(minutes=minutes * k) for k in range(n)]
+    if kind == "unix":
+        return [str(int((s - datetime(1970, 1, 1)).total_seconds())) for s in stamps]
+    return [f"{(s - datetime(1899, 12, 30)).total_seconds() / 86400:.6f}" for s in stamps]
+
+
+@pytest.mark.parametrize(("kind", "minutes", "named"), [
+    ("unix", 30, r"seconds since 1970-01-01 UTC.*'1622507400' is 2021-06-01 00:30 UTC"),
+    ("unix", 60, r"seconds since 1970-01-01 UTC"),
+    ("serial", 30, r"spreadsheet day numbers.*'44348.020833' is 2021-06-01 00:30\)"),
+])
+def test_numeric_clocks_are_named_with_what_to_do(kind, minutes, named):
+    """Unix seconds or spreadsheet day numbers in the time column are refused naming the
+    column, what they are (with the first stamp decoded) and what to do; before, the message
+    only said the stamp did not match time_format (robustness leftover 5)."""
+    text = _numeric_stamps(kind, minutes=minutes)
+    with pytest.raises(TimestampError, match=r"\[input\] time_column 'stamp'.*" + named
+                       + r".*write the column as dates and times.*time_format"):
+        _parse(text, "%Y-%m-%d %H:%M", columns=("stamp",))
+
+
+def test_percent_s_format_says_unix_time_is_not_read():
+    """time_format = "%s" (Unix time in some strftime dialects) names the way out."""
+    with pytest.raises(TimestampError, match=r'time_format = "%s" cannot be used.*Unix time'):
+        _parse(_numeric_stamps("unix"), "%s", columns=("stamp",))
+
+
+def test_ordinary_numbers_are_not_named_a_clock():
+    """Integer stamps of the %Y%m%d%H%M kind that fail for another reason get no clock hint."""
+    with pytest.raises(TimestampError) as caught:
+        _parse(["202101010030", "202101010100", "2021010101xx"], "%Y%m%d%H%M", columns=("s",))
+    assert "Unix" not in str(caught.value) and "spreadsheet" not in str(caught.value)

@@ -66,3 +66,51 @@ def test_zero_written_for_missing_refused(fen_year):
     message = _nee_refusal(nee, fen_year)
     assert message is not None and "'co2_flux' (nee)" in message
     assert "add 0 to [input] missing" in message
+
+
+@pytest.mark.parametrize("seed", [0, 4])
+def test_net_radiation_mapped_as_rg_refused(seed):
+    """Net radiation mapped as rg (negative all night) was read as global radiation, only
+    its values below -50 W m-2 rejected: the light response then saw a darker site. It is
+    refused naming the column. Facts (m): net radiation at night is about -30 to -100 W m-2
+    under a clear sky; a pyranometer's night offset is 0 to about -10 W m-2. The generated
+    global radiation itself passes (no false refusal)."""
+    from fluxpart import scenarios, solar
+
+    year = scenarios.generate(seed)
+    frame, site = year.frame, year.site
+    minutes = int((frame.index[1] - frame.index[0]).total_seconds() // 60)
+    potential = solar.potential_radiation(frame.index, site.latitude, site.longitude,
+                                          site.utc_offset, minutes)
+    rg = frame["rg"].to_numpy(float)
+    columns = {"rg": "sw"}
+    refusals, _ = mixup_messages({"rg": rg}, {}, columns, minutes, potential)
+    assert "rg" not in refusals
+    # net radiation: about 0.65 of the short-wave gain by day minus 45 W m-2 of long-wave loss
+    net = 0.65 * rg - 45.0
+    refusals, _ = mixup_messages({"rg": net}, {}, columns, minutes, potential)
+    assert "'sw' (rg)" in refusals["rg"] and "net radiation" in refusals["rg"]
+
+
+@pytest.mark.parametrize("seed", [0, 15, 18])
+def test_fahrenheit_air_temperature_of_a_cool_site_refused(seed):
+    """Air temperature in °F read as °C at a cool site: fewer than 5 % of the values leave
+    the 60 °C range limit, so the range check only warned and the record was read 1.8 T + 32
+    too warm; VPD checks then blamed VPD's unit. Refused naming tair and °F, VPD left alone.
+    Facts: °F = 9/5 °C + 32 (NIST SP 811 (m)); the warmest monthly mean air temperatures
+    measured are about 39 °C (Death Valley, July (m)). Correct records and kelvin pass it."""
+    from fluxpart import scenarios
+
+    year = scenarios.generate(seed)
+    frame = year.frame
+    minutes = int((frame.index[1] - frame.index[0]).total_seconds() // 60)
+    converted = {n: frame[n].to_numpy(float) for n in ("nee", "rg", "tair", "vpd")}
+    columns = {n: n for n in converted}
+    refusals, _ = mixup_messages(converted, {}, columns, minutes)
+    assert refusals == {}
+    fahrenheit = dict(converted, tair=converted["tair"] * 9 / 5 + 32)
+    refusals, _ = mixup_messages(fahrenheit, {}, columns, minutes)
+    assert list(refusals) == ["tair"] and 'tair = "°F"' in refusals["tair"]
+    kelvin = dict(converted, tair=converted["tair"] + 273.15)
+    refusals, _ = mixup_messages(kelvin, {}, columns, minutes)
+    assert "tair" not in refusals
