@@ -110,7 +110,7 @@ def test_a_soil_temperature_that_cannot_be_fitted_falls_back_to_air():
 def test_config_accepts_auto_and_names_it_among_the_choices():
     """'auto' is a valid respiration_driver; a wrong value lists it."""
     assert Config(respiration_driver="auto").respiration_driver == "auto"
-    with pytest.raises(ConfigError, match=r"respiration_driver = 'soil'.*'auto'"):
+    with pytest.raises(ConfigError, match=r'respiration_driver = "soil".*"auto"'):
         Config(respiration_driver="soil")
 
 
