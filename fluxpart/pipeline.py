@@ -482,21 +482,29 @@ def _fill_nee(nee_measured, conditions, index, is_night, config):
 
 
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
-                        temperature, config):
-    """Gap-fill NEE after the u* filter at `threshold` and partition it both ways."""
+                        temperature, config, night_fit=None):
+    """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
+
+    `night_fit`: the temperature choice's nighttime fit on the same measured NEE
+    and temperature, reused instead of fitting again.
+    """
     too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
     nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
     filled = _fill_nee(nee_measured, conditions, frame.index, is_night, config)
     temperature_filled = filled_drivers[f"{temperature}_filled"].to_numpy()
-    night = nighttime.partition_nighttime(
-        frame.index, nee_measured, filled["value"].to_numpy(), screened[temperature].to_numpy(),
-        temperature_filled, is_night, e0_window_days=config.e0_window_days,
-        e0_window_step_days=config.e0_window_step_days, e0_min_points=config.e0_min_points,
-        e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
-        e0_max_relative_error=config.e0_max_relative_error,
-        e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
-        rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
-        respiration_driver=temperature, e0_method=config.e0_method)
+    if night_fit is not None:
+        night = nighttime.apply_fit(night_fit, filled["value"].to_numpy(), temperature_filled)
+    else:
+        night = nighttime.partition_nighttime(
+            frame.index, nee_measured, filled["value"].to_numpy(),
+            screened[temperature].to_numpy(), temperature_filled, is_night,
+            e0_window_days=config.e0_window_days,
+            e0_window_step_days=config.e0_window_step_days, e0_min_points=config.e0_min_points,
+            e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
+            e0_max_relative_error=config.e0_max_relative_error,
+            e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
+            rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
+            respiration_driver=temperature, e0_method=config.e0_method)
     # the daytime method estimates E0 from its own night windows; where none has the
     # temperature range for it (e.g. a damped soil temperature), the nighttime method's
     # E0 stands in, flagged "fallback" in the daytime parameter table and warned about
@@ -623,10 +631,19 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     arguments = (frame, screened, filled_drivers, conditions, is_night)
     # one after another: in two threads the runs cost ~12 % more CPU and ~16 MB more
     # memory for no gain in wall time (GIL-bound); sites run in parallel in `batch`
+    # the choice fitted each candidate on the central run's measured NEE: its fits are
+    # reused where the measured temperature is the same series
+    night_fits = {} if choice is None else {
+        name: fit for name, fit in choice.fits.items()
+        if np.array_equal(frame[name].to_numpy(dtype=float),
+                          screened[name].to_numpy(dtype=float), equal_nan=True)
+        or name == temperature}
     outcomes = {}
     for name, threshold in runs.items():
         try:
-            outcomes[name] = _fill_and_partition(*arguments, threshold, temperature, config)
+            outcomes[name] = _fill_and_partition(
+                *arguments, threshold, temperature, config,
+                night_fits.get(temperature) if name == "central" else None)
         except InsufficientDataError as error:
             if name == "central":
                 raise
@@ -690,7 +707,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     timeseries = timeseries.assign(nee_random_error=sigma)
     daily, monthly, annual, gapfill_model = _uncertainty(
         daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night, night, day,
-        temperature, interval, config, year_keys)
+        temperature, interval, config, year_keys, night_fits)
     parameters["gapfill_error_model"] = gapfill_model
     annual = annual.join(uncertainty.carbon_accounting_units(annual))
     audit_table = audit.audit_trail(timeseries, year_keys=year_keys)
@@ -735,8 +752,12 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
 
 
 def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night,
-                 night, day, temperature, interval, config, year_keys):
-    """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals."""
+                 night, day, temperature, interval, config, year_keys, night_fits):
+    """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals.
+
+    `night_fits`: nighttime fits on the central measured NEE and the input's temperature
+    columns (by driver), reused for the other driver's Reco.
+    """
     index = timeseries.index
     nee_measured = timeseries["nee_measured"].to_numpy(dtype=float)
     measured = np.isfinite(nee_measured)
@@ -754,18 +775,23 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
     other_reco = None
     if f"{other}_filled" in timeseries.columns and other in timeseries.columns:
         try:
-            other_reco = nighttime.partition_nighttime(
-                index, nee_measured, timeseries["nee_filled"].to_numpy(dtype=float),
-                timeseries[other].to_numpy(dtype=float),
-                timeseries[f"{other}_filled"].to_numpy(dtype=float), is_night,
-                e0_window_days=config.e0_window_days,
-                e0_window_step_days=config.e0_window_step_days,
-                e0_min_points=config.e0_min_points,
-                e0_min_temperature_range=config.e0_min_temperature_range,
-                e0_bounds=config.e0_bounds, e0_max_relative_error=config.e0_max_relative_error,
-                e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
-                rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
-                respiration_driver=other, e0_method=config.e0_method).reco
+            if other in night_fits:
+                other_reco = nighttime.apply_fit(
+                    night_fits[other], timeseries["nee_filled"].to_numpy(dtype=float),
+                    timeseries[f"{other}_filled"].to_numpy(dtype=float)).reco
+            else:
+                other_reco = nighttime.partition_nighttime(
+                    index, nee_measured, timeseries["nee_filled"].to_numpy(dtype=float),
+                    timeseries[other].to_numpy(dtype=float),
+                    timeseries[f"{other}_filled"].to_numpy(dtype=float), is_night,
+                    e0_window_days=config.e0_window_days,
+                    e0_window_step_days=config.e0_window_step_days,
+                    e0_min_points=config.e0_min_points,
+                    e0_min_temperature_range=config.e0_min_temperature_range,
+                    e0_bounds=config.e0_bounds, e0_max_relative_error=config.e0_max_relative_error,
+                    e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
+                    rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
+                    respiration_driver=other, e0_method=config.e0_method).reco
         except FluxpartError:
             other_reco = None
     inputs = uncertainty.record_inputs(

@@ -50,6 +50,7 @@ from ..responses import lloyd_taylor, lloyd_taylor_derivatives
 __all__ = [
     "NighttimeResult",
     "annual_e0",
+    "apply_fit",
     "fit_e0_joint",
     "fit_e0_windows",
     "fit_rref_windows",
@@ -1068,8 +1069,59 @@ e0_bounds, e0_max_relative_error
                                     rref_window_days=rref_window_days,
                                     rref_min_points=rref_min_points)
     rref = rref_per_record(index, rref_windows)
+    return _respiration(rref, e0, nee_filled, temperature_filled, windows, e0_annual,
+                        rref_windows, respiration_driver)
+
+
+def _respiration(rref, e0, nee_filled, temperature_filled, e0_windows, e0_annual,
+                 rref_windows, respiration_driver) -> NighttimeResult:
+    """Step 3 of :func:`partition_nighttime`: Reco and GPP of fitted Rref and E0."""
     reco = lloyd_taylor(temperature_filled, rref, e0)
     gpp = reco - nee_filled
-    return NighttimeResult(reco=reco, gpp=gpp, rref=rref, e0=e0, e0_windows=windows,
+    return NighttimeResult(reco=reco, gpp=gpp, rref=rref, e0=e0, e0_windows=e0_windows,
                            e0_annual=e0_annual, rref_windows=rref_windows,
                            respiration_driver=respiration_driver)
+
+
+def apply_fit(fit: NighttimeResult, nee_filled, temperature_filled) -> NighttimeResult:
+    """Reco and GPP of an earlier nighttime fit on other gap-filled NEE and temperature.
+
+    The fits of :func:`partition_nighttime` (E0, Rref windows) depend only on the
+    measured NEE and temperature and the night mask; the gap-filled series enter
+    only its last step. A caller that fitted the same measured series before (the
+    temperature choice fits each candidate on them) reuses that fit here, with
+    the result :func:`partition_nighttime` would give.
+
+    Parameters
+    ----------
+    fit : NighttimeResult
+        Result of :func:`partition_nighttime` on the same measured NEE,
+        measured temperature, night mask and settings.
+    nee_filled : array_like
+        Gap-filled NEE [µmol m-2 s-1].
+    temperature_filled : array_like
+        Gap-filled driving temperature [°C].
+
+    Returns
+    -------
+    NighttimeResult
+        `fit` with Reco and GPP computed from `nee_filled` and `temperature_filled`.
+
+    Raises
+    ------
+    LengthMismatchError
+        For arrays of another length than the fit's.
+    ImplausibleValueError
+        For temperatures that cannot be °C.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439.
+
+    Lloyd, J. & Taylor, J. A. (1994). Functional Ecology 8:315–323.
+    """
+    length = len(fit.rref)
+    nee_filled = _as_float("nee_filled", nee_filled, length)
+    temperature_filled = _as_temperature("temperature_filled", temperature_filled, length)
+    return _respiration(fit.rref, fit.e0, nee_filled, temperature_filled, fit.e0_windows,
+                        fit.e0_annual, fit.rref_windows, fit.respiration_driver)
