@@ -288,37 +288,42 @@ def _fit_lloyd_taylor(temperature, flux, mask, counts):
     done = counts < 2
     converged = np.zeros(rref.shape, dtype=bool)
     ssr, residual, d_rref, d_e0 = _sum_of_squares(temperature, flux, mask, rref, e0)
+    # each window's arithmetic is its own row, so only the windows still running are
+    # computed (the rows of finished windows would only be carried along unchanged)
     for _ in range(_LM_MAX_ITERATIONS):
-        if done.all():
+        rows = np.flatnonzero(~done)
+        if rows.size == 0:
             break
-        a = np.sum(d_rref * d_rref, axis=1)
-        b = np.sum(d_rref * d_e0, axis=1)
-        c = np.sum(d_e0 * d_e0, axis=1)
-        g_rref = np.sum(d_rref * residual, axis=1)
-        g_e0 = np.sum(d_e0 * residual, axis=1)
-        scale = 1.0 + damping
+        row_d_rref, row_d_e0, row_residual = d_rref[rows], d_e0[rows], residual[rows]
+        row_rref, row_e0, row_ssr = rref[rows], e0[rows], ssr[rows]
+        a = np.sum(row_d_rref * row_d_rref, axis=1)
+        b = np.sum(row_d_rref * row_d_e0, axis=1)
+        c = np.sum(row_d_e0 * row_d_e0, axis=1)
+        g_rref = np.sum(row_d_rref * row_residual, axis=1)
+        g_e0 = np.sum(row_d_e0 * row_residual, axis=1)
+        scale = 1.0 + damping[rows]
         with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
             det = a * c * scale * scale - b * b
             step_rref = (g_rref * c * scale - b * g_e0) / det
             step_e0 = (a * scale * g_e0 - b * g_rref) / det
-        step_rref = np.where(done, 0.0, step_rref)
-        step_e0 = np.where(done, 0.0, step_e0)
-        trial_rref, trial_e0 = rref + step_rref, e0 + step_e0
-        trial = _sum_of_squares(temperature, flux, mask, trial_rref, trial_e0)
-        better = ~done & np.isfinite(trial[0]) & (trial[0] <= ssr)
-        small_step = ((np.abs(step_rref) <= _LM_XTOL * (np.abs(rref) + _LM_XTOL))
-                      & (np.abs(step_e0) <= _LM_XTOL * (np.abs(e0) + _LM_XTOL)))
-        small_gain = better & (ssr - trial[0] <= _LM_FTOL * ssr)
-        rref = np.where(better, trial_rref, rref)
-        e0 = np.where(better, trial_e0, e0)
-        ssr = np.where(better, trial[0], ssr)
-        residual = np.where(better[:, None], trial[1], residual)
-        d_rref = np.where(better[:, None], trial[2], d_rref)
-        d_e0 = np.where(better[:, None], trial[3], d_e0)
-        damping = np.where(better, damping / 10.0, damping * 10.0)
-        newly = ~done & ((better & (small_step | small_gain)) | (damping > _LM_LAMBDA_GIVE_UP))
-        converged |= newly
-        done |= newly
+        trial_rref, trial_e0 = row_rref + step_rref, row_e0 + step_e0
+        trial = _sum_of_squares(temperature[rows], flux[rows], mask[rows], trial_rref,
+                                trial_e0)
+        better = np.isfinite(trial[0]) & (trial[0] <= row_ssr)
+        small_step = ((np.abs(step_rref) <= _LM_XTOL * (np.abs(row_rref) + _LM_XTOL))
+                      & (np.abs(step_e0) <= _LM_XTOL * (np.abs(row_e0) + _LM_XTOL)))
+        small_gain = better & (row_ssr - trial[0] <= _LM_FTOL * row_ssr)
+        accepted = rows[better]
+        rref[accepted] = trial_rref[better]
+        e0[accepted] = trial_e0[better]
+        ssr[accepted] = trial[0][better]
+        residual[accepted] = trial[1][better]
+        d_rref[accepted] = trial[2][better]
+        d_e0[accepted] = trial[3][better]
+        damping[rows] = np.where(better, damping[rows] / 10.0, damping[rows] * 10.0)
+        newly = rows[(better & (small_step | small_gain)) | (damping[rows] > _LM_LAMBDA_GIVE_UP)]
+        converged[newly] = True
+        done[newly] = True
     a = np.sum(d_rref * d_rref, axis=1)
     b = np.sum(d_rref * d_e0, axis=1)
     c = np.sum(d_e0 * d_e0, axis=1)
@@ -637,19 +642,30 @@ def _absolute_deviation_profile(flux, term, starts, grid):
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         shape = np.exp(grid[:, None] * term[None, :])
         ratio = flux[None, :] / shape
-    # sort by window, then ratio (arctan maps the ratio monotonically into (0, 1))
-    key = window[None, :] + (0.5 + np.arctan(ratio) / np.pi) * 0.999
+    # sort by window, then ratio (arctan maps the ratio monotonically into (0, 1));
+    # the key is window + (0.5 + arctan(ratio) / pi) * 0.999, built in place
+    key = np.arctan(ratio)
+    key /= np.pi
+    key += 0.5
+    key *= 0.999
+    key += window
     order = np.argsort(key, axis=1, kind="stable")
-    ratio_sorted = np.take_along_axis(ratio, order, axis=1)
-    weight_sorted = np.take_along_axis(shape, order, axis=1)
+    order += (np.arange(grid.size) * flux.size)[:, None]    # positions in the flat arrays
+    ratio_sorted = ratio.take(order)
+    weight_sorted = shape.take(order)
     cumulative = np.cumsum(weight_sorted, axis=1)
     before = np.concatenate([np.zeros((grid.size, 1)), cumulative[:, starts[1:] - 1]], axis=1)
-    within = cumulative - before[:, window]
-    total = np.add.reduceat(weight_sorted, starts, axis=1)
-    below_half = within < 0.5 * total[:, window]
+    within = cumulative - np.repeat(before, sizes, axis=1)
+    half = np.add.reduceat(weight_sorted, starts, axis=1)
+    half *= 0.5
+    below_half = within < np.repeat(half, sizes, axis=1)
     position = starts[None, :] + np.add.reduceat(below_half, starts, axis=1)
     rref = np.take_along_axis(ratio_sorted, np.minimum(position, flux.size - 1), axis=1)
-    deviation = np.add.reduceat(np.abs(flux[None, :] - rref[:, window] * shape), starts, axis=1)
+    residual = np.repeat(rref, sizes, axis=1)
+    residual *= shape
+    np.subtract(flux[None, :], residual, out=residual)
+    np.abs(residual, out=residual)
+    deviation = np.add.reduceat(residual, starts, axis=1)
     return deviation, rref
 
 
