@@ -215,11 +215,12 @@ def _record_end_seconds(seconds: np.ndarray) -> float:
     return float(seconds[-1] + spacing)
 
 
-def _window_frame(anchor, starts_seconds, length_seconds) -> pd.DataFrame:
+def _window_frame(anchor, starts_seconds, length_seconds, **columns) -> pd.DataFrame:
+    """Window start, end and centre, then `columns` (one value per window)."""
     starts = anchor + pd.to_timedelta(starts_seconds, unit="s")
     length = pd.Timedelta(seconds=float(length_seconds))
     return pd.DataFrame({"window_start": starts, "window_end": starts + length,
-                         "window_centre": starts + length / 2})
+                         "window_centre": starts + length / 2, **columns})
 
 
 def _gather(window_lo, window_hi, *columns):
@@ -484,17 +485,13 @@ def fit_e0_windows(index, nee, temperature, is_night, *, e0_window_days=15.0,
          "Rref not positive",
          f"E0 relative standard error above {max_relative:g}"],
         default="")
-    frame = _window_frame(anchor, starts, window_seconds)
-    frame["year"] = frame["window_centre"].dt.year.astype("int64")
-    frame["points"] = counts.astype("int64")
-    frame["temperature_range"] = temperature_range
-    frame["e0"] = e0
-    frame["e0_se"] = e0_se
-    frame["rref"] = rref
-    frame["rref_se"] = rref_se
-    frame["accepted"] = reason == ""
-    frame["reason"] = pd.Series(reason, dtype="str")
-    return frame
+    centres = anchor + pd.to_timedelta(starts, unit="s") \
+        + pd.Timedelta(seconds=float(window_seconds)) / 2
+    return _window_frame(anchor, starts, window_seconds,
+                         year=centres.year.to_numpy().astype("int64"),
+                         points=counts.astype("int64"), temperature_range=temperature_range,
+                         e0=e0, e0_se=e0_se, rref=rref, rref_se=rref_se,
+                         accepted=reason == "", reason=pd.Series(reason, dtype="str"))
 
 
 # --------------------------------------------------------------------------- #
@@ -929,12 +926,9 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
             f"{min_points} or more usable night records and a non-negative Rref "
             f"({int(usable.sum())} usable night records in all). Lower rref_min_points or "
             "supply more measured night NEE.")
-    frame = _window_frame(anchor, starts, window_seconds)
-    frame["points"] = counts.astype("int64")
-    frame["rref"] = rref
-    frame["rref_se"] = rref_se
-    frame["e0"] = mean_e0
-    return frame[keep].reset_index(drop=True)
+    return _window_frame(anchor, starts[keep], window_seconds,
+                         points=counts[keep].astype("int64"), rref=rref[keep],
+                         rref_se=rref_se[keep], e0=mean_e0[keep])
 
 
 def rref_per_record(index, rref_windows: pd.DataFrame) -> np.ndarray:
