@@ -472,13 +472,13 @@ def _per_record(index, per_year: pd.Series) -> np.ndarray:
     return per_year.reindex(index.year).to_numpy(dtype=float)
 
 
-def _fill_nee(nee_measured, conditions, index, is_night, config):
+def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None):
     """MDS gap filling of NEE with the configured settings (also scored on artificial gaps)."""
     return gapfill.fill_marginal(
         nee_measured, conditions, index, is_night=is_night, donors=config.gapfill_donors,
         rg_tolerance=config.rg_tolerance, tair_tolerance=config.tair_tolerance,
         vpd_tolerance=config.vpd_tolerance, max_window_days=config.gapfill_max_window_days,
-        min_donors=config.gapfill_min_donors)
+        min_donors=config.gapfill_min_donors, gaps=gaps)
 
 
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
@@ -762,9 +762,11 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
     nee_measured = timeseries["nee_measured"].to_numpy(dtype=float)
     measured = np.isfinite(nee_measured)
     noise = np.where(measured, sigma, 0.0)
+    # only the held-out records are scored, so only they are filled (the same fills)
     gap_errors = uncertainty.artificial_gap_errors(
         nee_measured, noise, is_night,
-        lambda values: _fill_nee(values, conditions, index, is_night, config)["value"],
+        lambda values: _fill_nee(values, conditions, index, is_night, config,
+                                 gaps=measured & np.isnan(values))["value"],
         seed=config.seed)
     gapfill_model = uncertainty.gapfill_error_model(gap_errors)
     runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
