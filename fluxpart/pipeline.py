@@ -482,15 +482,25 @@ def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None):
 
 
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
-                        temperature, config, night_fit=None):
+                        temperature, config, night_fit=None, central_fill=None):
     """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
 
     `night_fit`: the temperature choice's nighttime fit on the same measured NEE
-    and temperature, reused instead of fitting again.
+    and temperature, reused instead of fitting again. `central_fill`: the central
+    run's NEE fill, whose day records a u* scenario shares (below).
     """
     too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
     nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
-    filled = _fill_nee(nee_measured, conditions, frame.index, is_night, config)
+    if central_fill is not None and config.gapfill_donors == "separate_day_night":
+        # the u* filter removes night records only, and day gaps take day donors only:
+        # the day records of every u* scenario are those of the central fill
+        night_fill = _fill_nee(nee_measured, conditions, frame.index, is_night, config,
+                               gaps=is_night)
+        filled = pd.DataFrame({column: np.where(is_night, night_fill[column].to_numpy(),
+                                                central_fill[column].to_numpy())
+                               for column in night_fill.columns}, index=night_fill.index)
+    else:
+        filled = _fill_nee(nee_measured, conditions, frame.index, is_night, config)
     temperature_filled = filled_drivers[f"{temperature}_filled"].to_numpy()
     if night_fit is not None:
         night = nighttime.apply_fit(night_fit, filled["value"].to_numpy(), temperature_filled)
@@ -643,7 +653,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         try:
             outcomes[name] = _fill_and_partition(
                 *arguments, threshold, temperature, config,
-                night_fits.get(temperature) if name == "central" else None)
+                night_fits.get(temperature) if name == "central" else None,
+                None if name == "central" else outcomes["central"][2])
         except InsufficientDataError as error:
             if name == "central":
                 raise
