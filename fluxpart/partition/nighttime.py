@@ -673,12 +673,22 @@ def _profile_e0(flux, term, starts, grid, max_relative):
     if windows == 0 or dof < 1:
         return np.nan, np.nan, windows, points, False, "too few night records"
     coarse = grid[::_JOINT_COARSE_STRIDE]
-    deviation, _ = _absolute_deviation_profile(flux, term, starts, coarse)
-    if not np.isfinite(deviation).all():
+    coarse_windows, coarse_rref = _absolute_deviation_profile(flux, term, starts, coarse)
+    if not np.isfinite(coarse_windows).all():
         return np.nan, np.nan, windows, points, False, "fit did not converge"
-    centre = coarse[int(np.argmin(deviation.sum(axis=1)))]
-    fine = grid[np.abs(grid - centre) <= _JOINT_JACKKNIFE_REACH]
-    per_window, rref = _absolute_deviation_profile(flux, term, starts, fine)
+    centre = coarse[int(np.argmin(coarse_windows.sum(axis=1)))]
+    chosen = np.flatnonzero(np.abs(grid - centre) <= _JOINT_JACKKNIFE_REACH)
+    fine = grid[chosen]
+    # each grid value's row is computed on its own: the coarse values in the fine
+    # range are taken from the coarse pass, the others computed
+    on_coarse = chosen % _JOINT_COARSE_STRIDE == 0
+    new_windows, new_rref = _absolute_deviation_profile(flux, term, starts,
+                                                        fine[~on_coarse])
+    per_window = np.empty((fine.size, windows))
+    rref = np.empty((fine.size, windows))
+    per_window[on_coarse] = coarse_windows[chosen[on_coarse] // _JOINT_COARSE_STRIDE]
+    rref[on_coarse] = coarse_rref[chosen[on_coarse] // _JOINT_COARSE_STRIDE]
+    per_window[~on_coarse], rref[~on_coarse] = new_windows, new_rref
     deviation = per_window.sum(axis=1)
     best = int(np.argmin(deviation))
     e0 = float(fine[best])
