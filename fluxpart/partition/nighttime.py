@@ -618,12 +618,19 @@ def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
         term = _temperature_term(temperature[enough])
         starts = np.flatnonzero(np.r_[True, np.diff(window[enough]) != 0])
         rows.append((int(year), *_profile_e0(flux, term, starts, grid, max_relative)))
-    frame = pd.DataFrame(rows, columns=["year", "e0", "e0_se", "windows", "points", "accepted",
-                                        "reason"])
-    frame = frame.astype({"year": "int64", "e0": "float64", "e0_se": "float64",
-                          "windows": "int64", "points": "int64", "accepted": "bool",
-                          "reason": "str"})
-    return frame.set_index("year")
+    return _year_table(rows, {"year": "int64", "e0": "float64", "e0_se": "float64",
+                              "windows": "int64", "points": "int64", "accepted": "bool",
+                              "reason": "str"})
+
+
+def _year_table(rows, dtypes) -> pd.DataFrame:
+    """One row per year from tuples in the order of `dtypes` (column -> dtype), by year."""
+    columns = list(zip(*rows, strict=True)) if rows else [()] * len(dtypes)
+    return pd.DataFrame({
+        name: pd.array(list(values), dtype="str") if dtype == "str"
+        else np.array(values, dtype=dtype)
+        for (name, dtype), values in zip(dtypes.items(), columns, strict=True)
+    }).set_index("year")
 
 
 def _absolute_deviation_profile(flux, term, starts, grid):
@@ -819,14 +826,10 @@ def annual_e0(windows: pd.DataFrame, *, e0_best_windows=3, e0_fallback=None,
         e0_se = float(np.sqrt(np.sum(chosen["e0_se"].to_numpy() ** 2)) / k)
         rows.append((year, e0, e0_se, len(accepted), k, len(candidates), counts[year],
                      "fitted"))
-    frame = pd.DataFrame(rows, columns=["year", "e0", "e0_se", "windows_accepted",
-                                        "windows_used", "windows_tried", "night_records",
-                                        "source"])
-    frame = frame.astype({"year": "int64", "e0": "float64", "e0_se": "float64",
-                          "windows_accepted": "int64", "windows_used": "int64",
-                          "windows_tried": "int64", "night_records": "int64",
-                          "source": "str"})
-    return frame.set_index("year")
+    return _year_table(rows, {"year": "int64", "e0": "float64", "e0_se": "float64",
+                              "windows_accepted": "int64", "windows_used": "int64",
+                              "windows_tried": "int64", "night_records": "int64",
+                              "source": "str"})
 
 
 def _no_e0_message(year: int, night_records: int, candidates: pd.DataFrame) -> str:
