@@ -175,6 +175,7 @@ def _matplotlib():
 #: dpi, hinting and antialiasing -> bitmap and offsets, or -> (width, height, descent).
 _TEXT_BITMAPS: dict = {}
 _TEXT_EXTENTS: dict = {}
+_FONT_METRICS: dict = {}
 _TEXT_CACHE_LIMIT = 4096
 _CACHED_CANVAS = []
 
@@ -219,6 +220,30 @@ def _text_cache_canvas(canvas_class):
         return value
 
     class CachedTextRenderer(backend_agg.RendererAgg):
+        def _get_font_height_metrics(self, prop):
+            # the font's ascent, descent and line gap as matplotlib's text layout reads
+            # them from the font tables at every layout (Text._get_layout, 3.11),
+            # read once per font, size and dpi; None: matplotlib measures instead
+            fonts = font_manager.fontManager._find_fonts_by_props(prop)
+            size = prop.get_size_in_points()
+            key = (tuple(str(f) for f in fonts), size, self.dpi)
+            metrics = _FONT_METRICS.get(key)
+            if metrics is None:
+                font = font_manager.get_font(fonts)
+                metrics = (None, None, None)
+                for name, gap, ascent, descent in (
+                        ("OS/2", "sTypoLineGap", "sTypoAscender", "sTypoDescender"),
+                        ("hhea", "lineGap", "ascent", "descent")):
+                    table = font.get_sfnt_table(name)
+                    if table is None:
+                        continue
+                    scale = 1 / font.get_sfnt_table("head")["unitsPerEm"] * size * self.dpi / 72
+                    metrics = (table[ascent] * scale, -table[descent] * scale,
+                               table[gap] * scale)
+                    break
+                remember(_FONT_METRICS, key, metrics)
+            return metrics
+
         def get_text_width_height_descent(self, s, prop, ismath):
             if ismath:
                 return super().get_text_width_height_descent(s, prop, ismath)

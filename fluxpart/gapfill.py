@@ -545,7 +545,7 @@ def _diurnal_course_pass(values, measured, gaps, half_width_days, per_day, diurn
 
 
 def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_condition,
-                 max_window_days, min_donors=1, is_night=None, interpolated=None):
+                 max_window_days, min_donors=1, is_night=None, interpolated=None, wanted=None):
     """Run the pass sequence on one series; return the output columns as arrays.
 
     ``all_conditions`` are (driver, tolerance) pairs of step 1 or ``None``;
@@ -554,7 +554,8 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
     ``is_night`` (bool per record), night gaps are filled from night records only
     and day gaps from day records only; ``None`` lets every record fill every gap.
     ``interpolated`` (bool per record, or ``None``) marks gaps already filled by
-    interpolation: they keep their value and are never donors.
+    interpolation: they keep their value and are never donors. ``wanted`` (bool per
+    record, or ``None`` for all) limits the gaps filled; the others stay unfilled.
     """
     n = values.size
     measured = ~np.isnan(values)
@@ -566,6 +567,8 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
     if interpolated is not None:
         method[interpolated] = METHOD_INTERPOLATED
     gaps = (~measured) if interpolated is None else (~measured & ~interpolated)
+    if wanted is not None:
+        gaps &= wanted
     classes = [np.ones(n, dtype=bool)] if is_night is None else [is_night, ~is_night]
     passes = pass_sequence(all_drivers=all_conditions is not None,
                            radiation=radiation_condition is not None,
@@ -698,7 +701,7 @@ def _check_count(name: str, value) -> int:
 def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day_night",
                   rg_tolerance=_RG_TOLERANCE, tair_tolerance=_TAIR_TOLERANCE,
                   vpd_tolerance=_VPD_TOLERANCE, max_window_days=_MAX_WINDOW_DAYS,
-                  min_donors=_MIN_DONORS) -> pd.DataFrame:
+                  min_donors=_MIN_DONORS, gaps=None) -> pd.DataFrame:
     """Fill the gaps of a flux series by marginal distribution sampling.
 
     Parameters
@@ -738,6 +741,12 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         s-1 for a half-hour, Richardson et al. 2006) or one undetected spike must
         not set a fill alone, and a spread (``std``) needs more than one record;
         a larger minimum pushes gaps to wider, less similar windows.
+    gaps : array_like of bool, optional
+        The missing records to fill, one per record; the other missing records are
+        left unfilled (``method`` -1). Default: every missing record. A gap's fill
+        depends only on the measured records and its own drivers, so the records
+        filled are the same as in a fill of every gap (scoring artificial gaps
+        needs only the held-out records).
 
     Returns
     -------
@@ -794,11 +803,18 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
     _check_setting("max_window_days", max_window_days, allow_zero=True, allow_inf=True)
     min_donors = _check_count("gapfill_min_donors", min_donors)
     night = _check_donors(donors, is_night, index)
+    wanted = None
+    if gaps is not None:
+        wanted = np.asarray(gaps)
+        if wanted.dtype != bool or wanted.shape != (len(index),):
+            raise FluxpartError(f"gaps: expected one bool per record ({len(index)}), found "
+                                f"dtype {wanted.dtype} and shape {wanted.shape}")
     columns = _fill_series(
         values, per_day, diurnal_records,
         all_conditions=list(zip((rg, tair, vpd), tolerances, strict=True)),
         radiation_condition=(rg, tolerances[0]),
-        max_window_days=max_window_days, min_donors=min_donors, is_night=night)
+        max_window_days=max_window_days, min_donors=min_donors, is_night=night,
+        wanted=wanted)
     return _output_frame(index, *columns)
 
 

@@ -472,31 +472,49 @@ def _per_record(index, per_year: pd.Series) -> np.ndarray:
     return per_year.reindex(index.year).to_numpy(dtype=float)
 
 
-def _fill_nee(nee_measured, conditions, index, is_night, config):
+def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None):
     """MDS gap filling of NEE with the configured settings (also scored on artificial gaps)."""
     return gapfill.fill_marginal(
         nee_measured, conditions, index, is_night=is_night, donors=config.gapfill_donors,
         rg_tolerance=config.rg_tolerance, tair_tolerance=config.tair_tolerance,
         vpd_tolerance=config.vpd_tolerance, max_window_days=config.gapfill_max_window_days,
-        min_donors=config.gapfill_min_donors)
+        min_donors=config.gapfill_min_donors, gaps=gaps)
 
 
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
-                        temperature, config, curvature):
-    """Gap-fill NEE after the u* filter at `threshold` and partition it both ways."""
+                        temperature, config, curvature, night_fit=None, central_fill=None):
+    """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
+
+    `night_fit`: the temperature choice's nighttime fit on the same measured NEE
+    and temperature, reused instead of fitting again. `central_fill`: the central
+    run's NEE fill, whose day records a u* scenario shares (below).
+    """
     too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
     nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
-    filled = _fill_nee(nee_measured, conditions, frame.index, is_night, config)
+    if central_fill is not None and config.gapfill_donors == "separate_day_night":
+        # the u* filter removes night records only, and day gaps take day donors only:
+        # the day records of every u* scenario are those of the central fill
+        night_fill = _fill_nee(nee_measured, conditions, frame.index, is_night, config,
+                               gaps=is_night)
+        filled = pd.DataFrame({column: np.where(is_night, night_fill[column].to_numpy(),
+                                                central_fill[column].to_numpy())
+                               for column in night_fill.columns}, index=night_fill.index)
+    else:
+        filled = _fill_nee(nee_measured, conditions, frame.index, is_night, config)
     temperature_filled = filled_drivers[f"{temperature}_filled"].to_numpy()
-    night = nighttime.partition_nighttime(
-        frame.index, nee_measured, filled["value"].to_numpy(), screened[temperature].to_numpy(),
-        temperature_filled, is_night, e0_window_days=config.e0_window_days,
-        e0_window_step_days=config.e0_window_step_days, e0_min_points=config.e0_min_points,
-        e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
-        e0_max_relative_error=config.e0_max_relative_error,
-        e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
-        rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
-        respiration_driver=temperature, e0_method=config.e0_method)
+    if night_fit is not None:
+        night = nighttime.apply_fit(night_fit, filled["value"].to_numpy(), temperature_filled)
+    else:
+        night = nighttime.partition_nighttime(
+            frame.index, nee_measured, filled["value"].to_numpy(),
+            screened[temperature].to_numpy(), temperature_filled, is_night,
+            e0_window_days=config.e0_window_days,
+            e0_window_step_days=config.e0_window_step_days, e0_min_points=config.e0_min_points,
+            e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
+            e0_max_relative_error=config.e0_max_relative_error,
+            e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
+            rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
+            respiration_driver=temperature, e0_method=config.e0_method)
     # the daytime method estimates E0 from its own night windows; where none has the
     # temperature range for it (e.g. a damped soil temperature), the nighttime method's
     # E0 stands in, flagged "fallback" in the daytime parameter table and warned about
@@ -624,12 +642,21 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     arguments = (frame, screened, filled_drivers, conditions, is_night)
     # one after another: in two threads the runs cost ~12 % more CPU and ~16 MB more
     # memory for no gain in wall time (GIL-bound); sites run in parallel in `batch`
+    # the choice fitted each candidate on the central run's measured NEE: its fits are
+    # reused where the measured temperature is the same series
+    night_fits = {} if choice is None else {
+        name: fit for name, fit in choice.fits.items()
+        if np.array_equal(frame[name].to_numpy(dtype=float),
+                          screened[name].to_numpy(dtype=float), equal_nan=True)
+        or name == temperature}
     outcomes = {}
     curvature = config.daytime_curvature
     for name, threshold in runs.items():
         try:
-            outcomes[name] = _fill_and_partition(*arguments, threshold, temperature, config,
-                                                 curvature)
+            outcomes[name] = _fill_and_partition(
+                *arguments, threshold, temperature, config, curvature,
+                night_fits.get(temperature) if name == "central" else None,
+                None if name == "central" else outcomes["central"][2])
             # the u* scenarios keep the central run's light-response curvature, so that
             # their spread is the u* threshold's alone
             curvature = float(outcomes["central"][4].parameters["curvature"].iloc[0])
@@ -696,7 +723,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     timeseries = timeseries.assign(nee_random_error=sigma)
     daily, monthly, annual, gapfill_model = _uncertainty(
         daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night, night, day,
-        temperature, interval, config, year_keys)
+        temperature, interval, config, year_keys, night_fits)
     parameters["gapfill_error_model"] = gapfill_model
     annual = annual.join(uncertainty.carbon_accounting_units(annual))
     audit_table = audit.audit_trail(timeseries, year_keys=year_keys)
@@ -741,15 +768,21 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
 
 
 def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night,
-                 night, day, temperature, interval, config, year_keys):
-    """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals."""
+                 night, day, temperature, interval, config, year_keys, night_fits):
+    """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals.
+
+    `night_fits`: nighttime fits on the central measured NEE and the input's temperature
+    columns (by driver), reused for the other driver's Reco.
+    """
     index = timeseries.index
     nee_measured = timeseries["nee_measured"].to_numpy(dtype=float)
     measured = np.isfinite(nee_measured)
     noise = np.where(measured, sigma, 0.0)
+    # only the held-out records are scored, so only they are filled (the same fills)
     gap_errors = uncertainty.artificial_gap_errors(
         nee_measured, noise, is_night,
-        lambda values: _fill_nee(values, conditions, index, is_night, config)["value"],
+        lambda values: _fill_nee(values, conditions, index, is_night, config,
+                                 gaps=measured & np.isnan(values))["value"],
         seed=config.seed)
     gapfill_model = uncertainty.gapfill_error_model(gap_errors)
     runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
@@ -760,18 +793,23 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
     other_reco = None
     if f"{other}_filled" in timeseries.columns and other in timeseries.columns:
         try:
-            other_reco = nighttime.partition_nighttime(
-                index, nee_measured, timeseries["nee_filled"].to_numpy(dtype=float),
-                timeseries[other].to_numpy(dtype=float),
-                timeseries[f"{other}_filled"].to_numpy(dtype=float), is_night,
-                e0_window_days=config.e0_window_days,
-                e0_window_step_days=config.e0_window_step_days,
-                e0_min_points=config.e0_min_points,
-                e0_min_temperature_range=config.e0_min_temperature_range,
-                e0_bounds=config.e0_bounds, e0_max_relative_error=config.e0_max_relative_error,
-                e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
-                rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
-                respiration_driver=other, e0_method=config.e0_method).reco
+            if other in night_fits:
+                other_reco = nighttime.apply_fit(
+                    night_fits[other], timeseries["nee_filled"].to_numpy(dtype=float),
+                    timeseries[f"{other}_filled"].to_numpy(dtype=float)).reco
+            else:
+                other_reco = nighttime.partition_nighttime(
+                    index, nee_measured, timeseries["nee_filled"].to_numpy(dtype=float),
+                    timeseries[other].to_numpy(dtype=float),
+                    timeseries[f"{other}_filled"].to_numpy(dtype=float), is_night,
+                    e0_window_days=config.e0_window_days,
+                    e0_window_step_days=config.e0_window_step_days,
+                    e0_min_points=config.e0_min_points,
+                    e0_min_temperature_range=config.e0_min_temperature_range,
+                    e0_bounds=config.e0_bounds, e0_max_relative_error=config.e0_max_relative_error,
+                    e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
+                    rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
+                    respiration_driver=other, e0_method=config.e0_method).reco
         except FluxpartError:
             other_reco = None
     inputs = uncertainty.record_inputs(

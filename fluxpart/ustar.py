@@ -252,11 +252,12 @@ def assign_seasons(index, latitude) -> pd.DataFrame:
     if latitude < 0:
         position = (position + 2) % 4
         months = _SOUTH_MONTHS
-    season = np.asarray(SEASONS, dtype=object)[position]
-    return pd.DataFrame({"year": np.asarray(index.year, dtype=np.int64), "season": season,
-                         "months": np.asarray([months[s] for s in SEASONS],
-                                              dtype=object)[position]},
-                        index=index).astype({"season": "str", "months": "str"})
+    # four labels each, taken per record (the same strings as converting every one)
+    return pd.DataFrame({"year": np.asarray(index.year, dtype=np.int64),
+                         "season": pd.array(list(SEASONS), dtype="str").take(position),
+                         "months": pd.array([months[s] for s in SEASONS],
+                                            dtype="str").take(position)},
+                        index=index)
 
 
 def moving_point_threshold(nee, ustar, tair, is_night, seasons, *, temperature_classes=6,

@@ -106,6 +106,33 @@ def _assert_same_fill(got, expected):
                                       err_msg=column)
 
 
+@pytest.mark.parametrize("minutes, separate", [(30, True), (60, False)])
+def test_filling_some_gaps_gives_their_fills_of_all_gaps(minutes, separate):
+    """Gaps named by ``gaps`` get the very values of a fill of every gap (issue 17).
+
+    Each gap is filled from measured records only (Reichstein et al. 2005, appendix A;
+    the per-gap oracle fills them one at a time), so the other gaps do not matter;
+    the records left out stay unfilled.
+    """
+    rng = np.random.default_rng(17)
+    index, measured, drivers, _, _ = _synthetic(rng, 3000, minutes, gap_fraction=0.5,
+                                                long_gap_days=5.0)
+    is_night = _night(drivers) if separate else None
+    donors = "separate_day_night" if separate else "similar_conditions_only"
+    wanted = np.isnan(measured) & (rng.random(measured.size) < 0.2)
+    every = fill_marginal_module(measured, drivers, index, is_night=is_night, donors=donors)
+    some = fill_marginal_module(measured, drivers, index, is_night=is_night, donors=donors,
+                                gaps=wanted)
+    kept = wanted | ~np.isnan(measured)
+    for column in COLUMNS:
+        assert some[column].to_numpy()[kept].tobytes() == every[column].to_numpy()[kept].tobytes()
+    assert (some["method"].to_numpy()[~kept] == -1).all()
+    assert np.isnan(some["value"].to_numpy()[~kept]).all()
+    with pytest.raises(FluxpartError, match="gaps: expected one bool per record"):
+        fill_marginal_module(measured, drivers, index, is_night=is_night, donors=donors,
+                             gaps=wanted[:-1])
+
+
 # --------------------------------------------------------------------------- oracle
 
 @settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])

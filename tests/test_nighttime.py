@@ -26,6 +26,7 @@ from fluxpart.errors import (
 from fluxpart.partition.nighttime import (
     NighttimeResult,
     annual_e0,
+    apply_fit,
     fit_e0_joint,
     fit_e0_windows,
     fit_rref_windows,
@@ -321,6 +322,27 @@ def test_deterministic(rng):
     assert first.reco.tobytes() == second.reco.tobytes()
     pd.testing.assert_frame_equal(first.e0_windows, second.e0_windows)
     pd.testing.assert_frame_equal(first.rref_windows, second.rref_windows)
+
+
+def test_apply_fit_gives_the_whole_method_on_other_filled_series(rng):
+    """Reusing a fit on other filled NEE and temperature equals a fresh run (issue 17).
+
+    The fits use only measured NEE and temperature (Reichstein et al. 2005, steps 1-2);
+    Reco is eq. 11 of Lloyd & Taylor (1994) on the filled temperature, written out here.
+    """
+    index, nee, filled, temperature, night, _ = _synthetic(rng)
+    fit = partition_nighttime(index, nee, nee, temperature, temperature, night)
+    other_filled = filled + 0.5
+    other_temperature = temperature + rng.normal(0.0, 1.0, temperature.size)
+    fresh = partition_nighttime(index, nee, other_filled, temperature, other_temperature, night)
+    reused = apply_fit(fit, other_filled, other_temperature)
+    assert reused.reco.tobytes() == fresh.reco.tobytes()
+    assert reused.gpp.tobytes() == fresh.gpp.tobytes()
+    np.testing.assert_allclose(reused.reco, _eq11(other_temperature, fit.rref, fit.e0),
+                               rtol=1e-12)
+    pd.testing.assert_frame_equal(reused.rref_windows, fresh.rref_windows)
+    with pytest.raises(ImplausibleValueError, match="temperature_filled"):
+        apply_fit(fit, other_filled, other_temperature + 273.15)
 
 
 def test_inputs_not_modified(rng):

@@ -50,6 +50,7 @@ from ..responses import lloyd_taylor, lloyd_taylor_derivatives
 __all__ = [
     "NighttimeResult",
     "annual_e0",
+    "apply_fit",
     "fit_e0_joint",
     "fit_e0_windows",
     "fit_rref_windows",
@@ -214,11 +215,12 @@ def _record_end_seconds(seconds: np.ndarray) -> float:
     return float(seconds[-1] + spacing)
 
 
-def _window_frame(anchor, starts_seconds, length_seconds) -> pd.DataFrame:
+def _window_frame(anchor, starts_seconds, length_seconds, **columns) -> pd.DataFrame:
+    """Window start, end and centre, then `columns` (one value per window)."""
     starts = anchor + pd.to_timedelta(starts_seconds, unit="s")
     length = pd.Timedelta(seconds=float(length_seconds))
     return pd.DataFrame({"window_start": starts, "window_end": starts + length,
-                         "window_centre": starts + length / 2})
+                         "window_centre": starts + length / 2, **columns})
 
 
 def _gather(window_lo, window_hi, *columns):
@@ -287,37 +289,42 @@ def _fit_lloyd_taylor(temperature, flux, mask, counts):
     done = counts < 2
     converged = np.zeros(rref.shape, dtype=bool)
     ssr, residual, d_rref, d_e0 = _sum_of_squares(temperature, flux, mask, rref, e0)
+    # each window's arithmetic is its own row, so only the windows still running are
+    # computed (the rows of finished windows would only be carried along unchanged)
     for _ in range(_LM_MAX_ITERATIONS):
-        if done.all():
+        rows = np.flatnonzero(~done)
+        if rows.size == 0:
             break
-        a = np.sum(d_rref * d_rref, axis=1)
-        b = np.sum(d_rref * d_e0, axis=1)
-        c = np.sum(d_e0 * d_e0, axis=1)
-        g_rref = np.sum(d_rref * residual, axis=1)
-        g_e0 = np.sum(d_e0 * residual, axis=1)
-        scale = 1.0 + damping
+        row_d_rref, row_d_e0, row_residual = d_rref[rows], d_e0[rows], residual[rows]
+        row_rref, row_e0, row_ssr = rref[rows], e0[rows], ssr[rows]
+        a = np.sum(row_d_rref * row_d_rref, axis=1)
+        b = np.sum(row_d_rref * row_d_e0, axis=1)
+        c = np.sum(row_d_e0 * row_d_e0, axis=1)
+        g_rref = np.sum(row_d_rref * row_residual, axis=1)
+        g_e0 = np.sum(row_d_e0 * row_residual, axis=1)
+        scale = 1.0 + damping[rows]
         with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
             det = a * c * scale * scale - b * b
             step_rref = (g_rref * c * scale - b * g_e0) / det
             step_e0 = (a * scale * g_e0 - b * g_rref) / det
-        step_rref = np.where(done, 0.0, step_rref)
-        step_e0 = np.where(done, 0.0, step_e0)
-        trial_rref, trial_e0 = rref + step_rref, e0 + step_e0
-        trial = _sum_of_squares(temperature, flux, mask, trial_rref, trial_e0)
-        better = ~done & np.isfinite(trial[0]) & (trial[0] <= ssr)
-        small_step = ((np.abs(step_rref) <= _LM_XTOL * (np.abs(rref) + _LM_XTOL))
-                      & (np.abs(step_e0) <= _LM_XTOL * (np.abs(e0) + _LM_XTOL)))
-        small_gain = better & (ssr - trial[0] <= _LM_FTOL * ssr)
-        rref = np.where(better, trial_rref, rref)
-        e0 = np.where(better, trial_e0, e0)
-        ssr = np.where(better, trial[0], ssr)
-        residual = np.where(better[:, None], trial[1], residual)
-        d_rref = np.where(better[:, None], trial[2], d_rref)
-        d_e0 = np.where(better[:, None], trial[3], d_e0)
-        damping = np.where(better, damping / 10.0, damping * 10.0)
-        newly = ~done & ((better & (small_step | small_gain)) | (damping > _LM_LAMBDA_GIVE_UP))
-        converged |= newly
-        done |= newly
+        trial_rref, trial_e0 = row_rref + step_rref, row_e0 + step_e0
+        trial = _sum_of_squares(temperature[rows], flux[rows], mask[rows], trial_rref,
+                                trial_e0)
+        better = np.isfinite(trial[0]) & (trial[0] <= row_ssr)
+        small_step = ((np.abs(step_rref) <= _LM_XTOL * (np.abs(row_rref) + _LM_XTOL))
+                      & (np.abs(step_e0) <= _LM_XTOL * (np.abs(row_e0) + _LM_XTOL)))
+        small_gain = better & (row_ssr - trial[0] <= _LM_FTOL * row_ssr)
+        accepted = rows[better]
+        rref[accepted] = trial_rref[better]
+        e0[accepted] = trial_e0[better]
+        ssr[accepted] = trial[0][better]
+        residual[accepted] = trial[1][better]
+        d_rref[accepted] = trial[2][better]
+        d_e0[accepted] = trial[3][better]
+        damping[rows] = np.where(better, damping[rows] / 10.0, damping[rows] * 10.0)
+        newly = rows[(better & (small_step | small_gain)) | (damping[rows] > _LM_LAMBDA_GIVE_UP)]
+        converged[newly] = True
+        done[newly] = True
     a = np.sum(d_rref * d_rref, axis=1)
     b = np.sum(d_rref * d_e0, axis=1)
     c = np.sum(d_e0 * d_e0, axis=1)
@@ -478,17 +485,13 @@ def fit_e0_windows(index, nee, temperature, is_night, *, e0_window_days=15.0,
          "Rref not positive",
          f"E0 relative standard error above {max_relative:g}"],
         default="")
-    frame = _window_frame(anchor, starts, window_seconds)
-    frame["year"] = frame["window_centre"].dt.year.astype("int64")
-    frame["points"] = counts.astype("int64")
-    frame["temperature_range"] = temperature_range
-    frame["e0"] = e0
-    frame["e0_se"] = e0_se
-    frame["rref"] = rref
-    frame["rref_se"] = rref_se
-    frame["accepted"] = reason == ""
-    frame["reason"] = pd.Series(reason, dtype="str")
-    return frame
+    centres = anchor + pd.to_timedelta(starts, unit="s") \
+        + pd.Timedelta(seconds=float(window_seconds)) / 2
+    return _window_frame(anchor, starts, window_seconds,
+                         year=centres.year.to_numpy().astype("int64"),
+                         points=counts.astype("int64"), temperature_range=temperature_range,
+                         e0=e0, e0_se=e0_se, rref=rref, rref_se=rref_se,
+                         accepted=reason == "", reason=pd.Series(reason, dtype="str"))
 
 
 # --------------------------------------------------------------------------- #
@@ -615,12 +618,19 @@ def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
         term = _temperature_term(temperature[enough])
         starts = np.flatnonzero(np.r_[True, np.diff(window[enough]) != 0])
         rows.append((int(year), *_profile_e0(flux, term, starts, grid, max_relative)))
-    frame = pd.DataFrame(rows, columns=["year", "e0", "e0_se", "windows", "points", "accepted",
-                                        "reason"])
-    frame = frame.astype({"year": "int64", "e0": "float64", "e0_se": "float64",
-                          "windows": "int64", "points": "int64", "accepted": "bool",
-                          "reason": "str"})
-    return frame.set_index("year")
+    return _year_table(rows, {"year": "int64", "e0": "float64", "e0_se": "float64",
+                              "windows": "int64", "points": "int64", "accepted": "bool",
+                              "reason": "str"})
+
+
+def _year_table(rows, dtypes) -> pd.DataFrame:
+    """One row per year from tuples in the order of `dtypes` (column -> dtype), by year."""
+    columns = list(zip(*rows, strict=True)) if rows else [()] * len(dtypes)
+    return pd.DataFrame({
+        name: pd.array(list(values), dtype="str") if dtype == "str"
+        else np.array(values, dtype=dtype)
+        for (name, dtype), values in zip(dtypes.items(), columns, strict=True)
+    }).set_index("year")
 
 
 def _absolute_deviation_profile(flux, term, starts, grid):
@@ -636,19 +646,30 @@ def _absolute_deviation_profile(flux, term, starts, grid):
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         shape = np.exp(grid[:, None] * term[None, :])
         ratio = flux[None, :] / shape
-    # sort by window, then ratio (arctan maps the ratio monotonically into (0, 1))
-    key = window[None, :] + (0.5 + np.arctan(ratio) / np.pi) * 0.999
+    # sort by window, then ratio (arctan maps the ratio monotonically into (0, 1));
+    # the key is window + (0.5 + arctan(ratio) / pi) * 0.999, built in place
+    key = np.arctan(ratio)
+    key /= np.pi
+    key += 0.5
+    key *= 0.999
+    key += window
     order = np.argsort(key, axis=1, kind="stable")
-    ratio_sorted = np.take_along_axis(ratio, order, axis=1)
-    weight_sorted = np.take_along_axis(shape, order, axis=1)
+    order += (np.arange(grid.size) * flux.size)[:, None]    # positions in the flat arrays
+    ratio_sorted = ratio.take(order)
+    weight_sorted = shape.take(order)
     cumulative = np.cumsum(weight_sorted, axis=1)
     before = np.concatenate([np.zeros((grid.size, 1)), cumulative[:, starts[1:] - 1]], axis=1)
-    within = cumulative - before[:, window]
-    total = np.add.reduceat(weight_sorted, starts, axis=1)
-    below_half = within < 0.5 * total[:, window]
+    within = cumulative - np.repeat(before, sizes, axis=1)
+    half = np.add.reduceat(weight_sorted, starts, axis=1)
+    half *= 0.5
+    below_half = within < np.repeat(half, sizes, axis=1)
     position = starts[None, :] + np.add.reduceat(below_half, starts, axis=1)
     rref = np.take_along_axis(ratio_sorted, np.minimum(position, flux.size - 1), axis=1)
-    deviation = np.add.reduceat(np.abs(flux[None, :] - rref[:, window] * shape), starts, axis=1)
+    residual = np.repeat(rref, sizes, axis=1)
+    residual *= shape
+    np.subtract(flux[None, :], residual, out=residual)
+    np.abs(residual, out=residual)
+    deviation = np.add.reduceat(residual, starts, axis=1)
     return deviation, rref
 
 
@@ -659,12 +680,22 @@ def _profile_e0(flux, term, starts, grid, max_relative):
     if windows == 0 or dof < 1:
         return np.nan, np.nan, windows, points, False, "too few night records"
     coarse = grid[::_JOINT_COARSE_STRIDE]
-    deviation, _ = _absolute_deviation_profile(flux, term, starts, coarse)
-    if not np.isfinite(deviation).all():
+    coarse_windows, coarse_rref = _absolute_deviation_profile(flux, term, starts, coarse)
+    if not np.isfinite(coarse_windows).all():
         return np.nan, np.nan, windows, points, False, "fit did not converge"
-    centre = coarse[int(np.argmin(deviation.sum(axis=1)))]
-    fine = grid[np.abs(grid - centre) <= _JOINT_JACKKNIFE_REACH]
-    per_window, rref = _absolute_deviation_profile(flux, term, starts, fine)
+    centre = coarse[int(np.argmin(coarse_windows.sum(axis=1)))]
+    chosen = np.flatnonzero(np.abs(grid - centre) <= _JOINT_JACKKNIFE_REACH)
+    fine = grid[chosen]
+    # each grid value's row is computed on its own: the coarse values in the fine
+    # range are taken from the coarse pass, the others computed
+    on_coarse = chosen % _JOINT_COARSE_STRIDE == 0
+    new_windows, new_rref = _absolute_deviation_profile(flux, term, starts,
+                                                        fine[~on_coarse])
+    per_window = np.empty((fine.size, windows))
+    rref = np.empty((fine.size, windows))
+    per_window[on_coarse] = coarse_windows[chosen[on_coarse] // _JOINT_COARSE_STRIDE]
+    rref[on_coarse] = coarse_rref[chosen[on_coarse] // _JOINT_COARSE_STRIDE]
+    per_window[~on_coarse], rref[~on_coarse] = new_windows, new_rref
     deviation = per_window.sum(axis=1)
     best = int(np.argmin(deviation))
     e0 = float(fine[best])
@@ -795,14 +826,10 @@ def annual_e0(windows: pd.DataFrame, *, e0_best_windows=3, e0_fallback=None,
         e0_se = float(np.sqrt(np.sum(chosen["e0_se"].to_numpy() ** 2)) / k)
         rows.append((year, e0, e0_se, len(accepted), k, len(candidates), counts[year],
                      "fitted"))
-    frame = pd.DataFrame(rows, columns=["year", "e0", "e0_se", "windows_accepted",
-                                        "windows_used", "windows_tried", "night_records",
-                                        "source"])
-    frame = frame.astype({"year": "int64", "e0": "float64", "e0_se": "float64",
-                          "windows_accepted": "int64", "windows_used": "int64",
-                          "windows_tried": "int64", "night_records": "int64",
-                          "source": "str"})
-    return frame.set_index("year")
+    return _year_table(rows, {"year": "int64", "e0": "float64", "e0_se": "float64",
+                              "windows_accepted": "int64", "windows_used": "int64",
+                              "windows_tried": "int64", "night_records": "int64",
+                              "source": "str"})
 
 
 def _no_e0_message(year: int, night_records: int, candidates: pd.DataFrame) -> str:
@@ -912,12 +939,9 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
             f"{min_points} or more usable night records and a non-negative Rref "
             f"({int(usable.sum())} usable night records in all). Lower rref_min_points or "
             "supply more measured night NEE.")
-    frame = _window_frame(anchor, starts, window_seconds)
-    frame["points"] = counts.astype("int64")
-    frame["rref"] = rref
-    frame["rref_se"] = rref_se
-    frame["e0"] = mean_e0
-    return frame[keep].reset_index(drop=True)
+    return _window_frame(anchor, starts[keep], window_seconds,
+                         points=counts[keep].astype("int64"), rref=rref[keep],
+                         rref_se=rref_se[keep], e0=mean_e0[keep])
 
 
 def rref_per_record(index, rref_windows: pd.DataFrame) -> np.ndarray:
@@ -1068,8 +1092,59 @@ e0_bounds, e0_max_relative_error
                                     rref_window_days=rref_window_days,
                                     rref_min_points=rref_min_points)
     rref = rref_per_record(index, rref_windows)
+    return _respiration(rref, e0, nee_filled, temperature_filled, windows, e0_annual,
+                        rref_windows, respiration_driver)
+
+
+def _respiration(rref, e0, nee_filled, temperature_filled, e0_windows, e0_annual,
+                 rref_windows, respiration_driver) -> NighttimeResult:
+    """Step 3 of :func:`partition_nighttime`: Reco and GPP of fitted Rref and E0."""
     reco = lloyd_taylor(temperature_filled, rref, e0)
     gpp = reco - nee_filled
-    return NighttimeResult(reco=reco, gpp=gpp, rref=rref, e0=e0, e0_windows=windows,
+    return NighttimeResult(reco=reco, gpp=gpp, rref=rref, e0=e0, e0_windows=e0_windows,
                            e0_annual=e0_annual, rref_windows=rref_windows,
                            respiration_driver=respiration_driver)
+
+
+def apply_fit(fit: NighttimeResult, nee_filled, temperature_filled) -> NighttimeResult:
+    """Reco and GPP of an earlier nighttime fit on other gap-filled NEE and temperature.
+
+    The fits of :func:`partition_nighttime` (E0, Rref windows) depend only on the
+    measured NEE and temperature and the night mask; the gap-filled series enter
+    only its last step. A caller that fitted the same measured series before (the
+    temperature choice fits each candidate on them) reuses that fit here, with
+    the result :func:`partition_nighttime` would give.
+
+    Parameters
+    ----------
+    fit : NighttimeResult
+        Result of :func:`partition_nighttime` on the same measured NEE,
+        measured temperature, night mask and settings.
+    nee_filled : array_like
+        Gap-filled NEE [µmol m-2 s-1].
+    temperature_filled : array_like
+        Gap-filled driving temperature [°C].
+
+    Returns
+    -------
+    NighttimeResult
+        `fit` with Reco and GPP computed from `nee_filled` and `temperature_filled`.
+
+    Raises
+    ------
+    LengthMismatchError
+        For arrays of another length than the fit's.
+    ImplausibleValueError
+        For temperatures that cannot be °C.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439.
+
+    Lloyd, J. & Taylor, J. A. (1994). Functional Ecology 8:315–323.
+    """
+    length = len(fit.rref)
+    nee_filled = _as_float("nee_filled", nee_filled, length)
+    temperature_filled = _as_temperature("temperature_filled", temperature_filled, length)
+    return _respiration(fit.rref, fit.e0, nee_filled, temperature_filled, fit.e0_windows,
+                        fit.e0_annual, fit.rref_windows, fit.respiration_driver)

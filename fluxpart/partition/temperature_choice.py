@@ -28,7 +28,7 @@ an imprecise E0 and the comparison decides.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -79,6 +79,11 @@ class TemperatureChoice:
     tsoil_weight : float
         Posterior weight of soil temperature under equal priors,
         1 / (1 + exp(ΔBIC / 2)); NaN when not compared.
+    fits : dict
+        The nighttime fit of each candidate that was fitted
+        (:class:`~fluxpart.partition.nighttime.NighttimeResult` on the measured
+        temperature), for reuse by :func:`~fluxpart.partition.nighttime.apply_fit`;
+        not part of :meth:`to_dict`.
     """
 
     driver: str
@@ -87,6 +92,7 @@ class TemperatureChoice:
     records: int
     delta_bic: float
     tsoil_weight: float
+    fits: dict = field(default_factory=dict, repr=False, compare=False)
 
     def to_dict(self) -> dict:
         """Plain values for the provenance record."""
@@ -160,7 +166,7 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
         fits["tsoil"] = _night_fit(index, nee, tsoil, night, "tsoil", nighttime_settings)
     except InsufficientDataError as error:
         return TemperatureChoice("tair", f"the soil-temperature fit failed ({error})",
-                                 {"tair": np.nan, "tsoil": np.nan}, 0, np.nan, np.nan)
+                                 {"tair": np.nan, "tsoil": np.nan}, 0, np.nan, np.nan, fits)
     reco = {name: fit.reco for name, fit in fits.items()}
     bounds = nighttime_settings.get("e0_bounds", _DEFAULT_E0_BOUNDS)
     pressed = {name: _e0_at_bound(fit.e0_annual, bounds) for name, fit in fits.items()}
@@ -170,7 +176,7 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
            for name, values in reco.items()}
     if count < MIN_SHARED_RECORDS or min(ssr.values()) <= 0:
         return TemperatureChoice("tair", f"only {count} night records have both temperatures",
-                                 ssr, count, np.nan, np.nan)
+                                 ssr, count, np.nan, np.nan, fits)
     delta_bic = count * float(np.log(ssr["tsoil"] / ssr["tair"]))
     weight = driver_weight(nee, shared, reco["tair"], reco["tsoil"])
     strongly_favoured = ("tsoil" if delta_bic < -STRONG_EVIDENCE_BIC
@@ -182,7 +188,7 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
                   f"within one standard error of the accepted range {list(bounds)} K: "
                   f"{words[driver]} temperature used (ΔBIC soil - air = {delta_bic:.1f} over "
                   f"{count} records)")
-        return TemperatureChoice(driver, reason, ssr, count, delta_bic, weight)
+        return TemperatureChoice(driver, reason, ssr, count, delta_bic, weight, fits)
     driver = "tsoil" if delta_bic < -MIN_EVIDENCE_BIC else "tair"
     if driver == "tair" and delta_bic < 0:
         reason = (f"soil and air temperature explain the measured night NEE equally well "
@@ -196,7 +202,7 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
             reason += (f", strongly (beyond {STRONG_EVIDENCE_BIC:g}), although its E0 of "
                        f"{pressed[driver]} K is within one standard error of the accepted "
                        f"range {list(bounds)} K")
-    return TemperatureChoice(driver, reason, ssr, count, delta_bic, weight)
+    return TemperatureChoice(driver, reason, ssr, count, delta_bic, weight, fits)
 
 
 def _night_fit(index, nee, temperature, night, name, settings):
