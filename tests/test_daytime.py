@@ -518,6 +518,29 @@ def test_standard_errors_survive_a_window_with_a_non_finite_jacobian():
     assert not np.isfinite(errors[1]).any()
 
 
+def _random_packed_problem(seed, count, width):
+    """Random drivers, weights, NEE, masks and parameters of `count` packed windows."""
+    rng = np.random.default_rng(seed)
+    shape = (count, width)
+    windows = {"rg": rng.uniform(5.0, 1000.0, shape), "vpd": rng.uniform(0.0, 30.0, shape),
+               "factor": rng.uniform(0.5, 2.0, shape), "weight": rng.uniform(0.5, 2.0, shape),
+               "nee": rng.normal(0.0, 5.0, shape)}
+    mask = rng.random(shape) < 0.7
+    theta = np.column_stack([rng.uniform(0.01, 0.1, count), rng.uniform(5.0, 40.0, count),
+                             rng.uniform(0.0, 0.1, count), rng.uniform(1.0, 5.0, count)])
+    return windows, mask, theta
+
+
+def _assert_gradient_is_the_cost_derivative(daytime, theta, data, gradient):
+    """J^T r equals central finite differences of the cost (a fact of calculus)."""
+    for column in range(4):
+        step = np.zeros_like(theta)
+        step[:, column] = 1e-6 * np.maximum(np.abs(theta[:, column]), 1e-3)
+        numeric = (daytime._cost(theta + step, data)[0] - daytime._cost(theta - step, data)[0]) \
+            / (2.0 * step[:, column])
+        np.testing.assert_allclose(gradient[:, column], numeric, rtol=1e-5, atol=1e-8)
+
+
 def test_packed_fit_cost_and_normal_equations_match_the_response_functions():
     """The fit's cost, J^T r and J^T J on packed windows equal those built from
     fluxpart.responses.light_response and light_response_derivatives, and the
@@ -525,17 +548,9 @@ def test_packed_fit_cost_and_normal_equations_match_the_response_functions():
     from fluxpart.partition import daytime
     from fluxpart.responses import light_response_derivatives
 
-    rng = np.random.default_rng(8)
-    shape = (6, 50)
-    rg = rng.uniform(5.0, 1000.0, shape)
-    vpd = rng.uniform(0.0, 30.0, shape)
-    factor = rng.uniform(0.5, 2.0, shape)
-    weight = rng.uniform(0.5, 2.0, shape)
-    nee = rng.normal(0.0, 5.0, shape)
-    mask = rng.random(shape) < 0.7
-    windows = {"rg": rg, "vpd": vpd, "factor": factor, "weight": weight, "nee": nee}
-    theta = np.column_stack([rng.uniform(0.01, 0.1, 6), rng.uniform(5.0, 40.0, 6),
-                             rng.uniform(0.0, 0.1, 6), rng.uniform(1.0, 5.0, 6)])
+    windows, mask, theta = _random_packed_problem(8, 6, 50)
+    rg, vpd, factor, weight, nee = (windows[name] for name in
+                                    ("rg", "vpd", "factor", "weight", "nee"))
     data = daytime._packed_fit_data(windows, mask, np.arange(6), 10.0)
     cost, parts = daytime._cost(theta, data)
     gradient, normal = daytime._normal_equations(data, parts)
@@ -551,35 +566,21 @@ def test_packed_fit_cost_and_normal_equations_match_the_response_functions():
                                rtol=1e-10, atol=1e-12)
     np.testing.assert_allclose(normal, np.einsum("wpi,wpj->wij", jacobian, jacobian),
                                rtol=1e-10, atol=1e-12)
-    # finite differences of the cost give the gradient J^T r
-    for column in range(4):
-        step = np.zeros_like(theta)
-        step[:, column] = 1e-6 * np.maximum(np.abs(theta[:, column]), 1e-3)
-        numeric = (daytime._cost(theta + step, data)[0] - daytime._cost(theta - step, data)[0]) \
-            / (2.0 * step[:, column])
-        np.testing.assert_allclose(gradient[:, column], numeric, rtol=1e-5, atol=1e-8)
+    _assert_gradient_is_the_cost_derivative(daytime, theta, data, gradient)
 
 
-def test_curved_fit_gradient_matches_finite_differences_and_curve_fit():
+def test_curved_fit_cost_and_gradient_match_the_non_rectangular_hyperbola():
     """With a curvature above 0 the fit's cost equals the non-rectangular hyperbola's
     sum of squares and its J^T r equals central finite differences of the cost (a fact
     of calculus); the non-rectangular hyperbola is Johnson & Thornley (1984), eq. 2 (m)."""
     from fluxpart.partition import daytime
     from fluxpart.responses import non_rectangular_hyperbola, vpd_limited_beta
 
-    rng = np.random.default_rng(9)
-    shape = (5, 40)
-    rg = rng.uniform(5.0, 1000.0, shape)
-    vpd = rng.uniform(0.0, 30.0, shape)
-    factor = rng.uniform(0.5, 2.0, shape)
-    weight = rng.uniform(0.5, 2.0, shape)
-    nee = rng.normal(0.0, 5.0, shape)
-    mask = rng.random(shape) < 0.7
+    windows, mask, theta = _random_packed_problem(9, 5, 40)
     curvature = np.array([0.1, 0.3, 0.5, 0.7, 0.9])
-    windows = {"rg": rg, "vpd": vpd, "factor": factor, "weight": weight, "nee": nee,
-               "curvature": curvature}
-    theta = np.column_stack([rng.uniform(0.01, 0.1, 5), rng.uniform(5.0, 40.0, 5),
-                             rng.uniform(0.0, 0.1, 5), rng.uniform(1.0, 5.0, 5)])
+    windows["curvature"] = curvature
+    rg, vpd, factor, weight, nee = (windows[name] for name in
+                                    ("rg", "vpd", "factor", "weight", "nee"))
     data = daytime._packed_fit_data(windows, mask, np.arange(5), 10.0)
     cost, parts = daytime._cost(theta, data)
     gradient, normal = daytime._normal_equations(data, parts)
@@ -588,12 +589,7 @@ def test_curved_fit_gradient_matches_finite_differences_and_curve_fit():
                                     curvature[:, None])
     residual = np.where(mask, (rref * factor - gpp - nee) * weight, 0.0)
     np.testing.assert_allclose(cost, 0.5 * (residual**2).sum(axis=1), rtol=1e-12)
-    for column in range(4):
-        step = np.zeros_like(theta)
-        step[:, column] = 1e-6 * np.maximum(np.abs(theta[:, column]), 1e-3)
-        numeric = (daytime._cost(theta + step, data)[0] - daytime._cost(theta - step, data)[0]) \
-            / (2.0 * step[:, column])
-        np.testing.assert_allclose(gradient[:, column], numeric, rtol=1e-5, atol=1e-8)
+    _assert_gradient_is_the_cost_derivative(daytime, theta, data, gradient)
     assert np.all(np.linalg.eigvalsh(normal) >= -1e-9 * np.abs(normal).max())
 
 
