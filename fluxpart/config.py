@@ -194,6 +194,15 @@ class Config:
         windows sit at the edges of long gaps and high-latitude summers, where
         they anchor the interpolation (on generated 66° N site-years they moved
         annual Reco by +13 % and −8 %; our choice, measured).
+    rref_low_light_rg : float
+        Rg [W m-2] below which an Rref window with fewer than ``rref_min_points``
+        night records (weeks of midnight sun, thin summer nights of hourly
+        records) fits Rref to its measured NEE with a straight light response,
+        ``NEE = Rref f(T) - a Rg``, instead of taking Rref interpolated across it;
+        0 switches this off. Default 100 W m-2 (about 200 µmol m-2 s-1 of PAR):
+        canopy photosynthesis rises linearly with light at low light (common
+        practice), and at high latitude the low sun of the night hours gives such
+        records every day. See :func:`fluxpart.partition.nighttime.fit_rref_windows`.
     daytime_window_days : float
         Light-response fitting window [days]; 4, Lasslop et al. (2010).
     daytime_window_step_days : float
@@ -342,6 +351,7 @@ class Config:
     e0_method: str = "joint"
     rref_window_days: float = 4.0
     rref_min_points: int = 6
+    rref_low_light_rg: float = 100.0
     daytime_window_days: float = 4.0
     daytime_window_step_days: float = 2.0
     daytime_min_points: int = 10
@@ -540,6 +550,10 @@ _RANGES = {
         "respiration (4 days, Reichstein et al. 2005), which a month-long window flattens"),
     "rref_min_points": _Range(
         1, 31 * _PER_DAY, "records", "Rref with E0 fixed needs one record", whole=True),
+    "rref_low_light_rg": _Range(
+        0.0, 300.0, "W m-2", "0 turns the low-light rule off; above about 300 W m-2 the light "
+        "response of most canopies bends, so a straight line no longer extrapolates to "
+        "respiration (common practice (m))"),
     "daytime_window_days": _Range(
         1.0, 31.0, "days", "a window needs a day; the light response changes with the "
         "season (4 days, Lasslop et al. 2010), which a month-long window flattens"),

@@ -317,6 +317,7 @@ def _chosen_temperature(driver, index, screened, is_night, threshold, config):
         e0_max_relative_error=config.e0_max_relative_error,
         e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
         rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
+        rref_low_light_rg=config.rref_low_light_rg, rg=_measured_rg(screened),
         e0_method=config.e0_method)
     return choice.driver, choice
 
@@ -481,6 +482,11 @@ def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None):
         min_donors=config.gapfill_min_donors, gaps=gaps)
 
 
+def _measured_rg(table):
+    """Measured global radiation [W m-2] of a screened table (NaN where missing)."""
+    return table["rg"].to_numpy(dtype=float)
+
+
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
                         temperature, config, curvature, night_fit=None, central_fill=None):
     """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
@@ -514,6 +520,7 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
             e0_max_relative_error=config.e0_max_relative_error,
             e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
             rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
+            rref_low_light_rg=config.rref_low_light_rg, rg=_measured_rg(screened),
             respiration_driver=temperature, e0_method=config.e0_method)
     # the daytime method estimates E0 from its own night windows; where none has the
     # temperature range for it (e.g. a damped soil temperature), the nighttime method's
@@ -809,6 +816,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                     e0_bounds=config.e0_bounds, e0_max_relative_error=config.e0_max_relative_error,
                     e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
                     rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
+                    rref_low_light_rg=config.rref_low_light_rg, rg=_measured_rg(timeseries),
                     respiration_driver=other, e0_method=config.e0_method).reco
         except FluxpartError:
             other_reco = None

@@ -421,7 +421,9 @@ _PARAMETERS = {
     "windows_used": ("1", "windows in the year's E0: the 15-day windows of the joint fit "
                           "(source joint) or the accepted windows averaged (source fitted)"),
     "windows_tried": ("1", "E0 windows fitted in the year"),
-    "source": ("", "where the value came from"),
+    "source": ("", "where the value came from (nighttime Rref windows: night records, or "
+               "low_light for a long run of windows without night, fitted at Rg below "
+               "rref_low_light_rg)"),
 }
 
 

@@ -247,7 +247,8 @@ def test_recovers_seasonal_rref(rng):
     assert np.median(relative) < 0.10
     windows = result.rref_windows
     assert list(windows.columns) == ["window_start", "window_end", "window_centre", "points",
-                                     "rref", "rref_se", "e0"]
+                                     "rref", "rref_se", "e0", "source"]
+    assert set(windows["source"]) == {"night"}
     gaps = windows["window_start"].diff().dropna()
     assert (gaps >= pd.Timedelta(days=4)).all() and (gaps % pd.Timedelta(days=4)
                                                      == pd.Timedelta(0)).all()
@@ -589,3 +590,64 @@ def test_config_e0_method_choices():
     assert Config(e0_method="best_windows").e0_method == "best_windows"
     with pytest.raises(ConfigError, match=r"\[processing\] e0_method"):
         Config(e0_method="median")
+
+
+def test_low_light_rule_fits_rref_where_a_window_has_no_night():
+    """Weeks of midnight sun: windows without night records take Rref from their
+    low-light NEE = Rref f(T) - a Rg. Checked against statsmodels OLS on the same
+    records (estimate and standard error; version printed on failure) and against the
+    planted Rref (invented known truth, Lloyd & Taylor 1994 eq. 11 for f); with the rule
+    off, such windows are dropped as before."""
+    from fluxpart.partition.nighttime import fit_rref_windows
+
+    rng = np.random.default_rng(44)
+    index = pd.date_range("2021-06-01", periods=48 * 16, freq="30min")
+    hour = index.hour.to_numpy() + index.minute.to_numpy() / 60.0
+    rg = 5.0 + 595.0 * np.clip(np.cos(np.pi * (hour - 12.0) / 24.0), 0.0, None) ** 2
+    temperature = 12.0 + 4.0 * np.sin(2 * np.pi * (hour - 9.0) / 24.0)
+    rref_true, e0, slope = 2.5, 200.0, 0.02
+    f = np.exp(e0 * (1.0 / 56.02 - 1.0 / (temperature + 273.15 - 227.13)))
+    nee = rref_true * f - slope * rg + rng.normal(0.0, 0.2, len(index))
+    night = np.zeros(len(index), dtype=bool)                     # the sun never sets
+    e0_record = np.full(len(index), e0)
+    windows = fit_rref_windows(index, nee, temperature, night, e0_record, rg=rg,
+                               low_light_rg=100.0)
+    assert set(windows["source"]) == {"low_light"} and len(windows) == 5   # noon-anchored
+    assert abs(windows["rref"].median() / rref_true - 1.0) < 0.05
+    for _, window in windows.iterrows():
+        use = ((index >= window["window_start"]) & (index < window["window_end"])
+               & (rg < 100.0))
+        reference = sm.OLS(nee[use], np.column_stack([f[use], -rg[use]])).fit()
+        message = f"statsmodels {statsmodels.__version__}"
+        assert window["rref"] == pytest.approx(reference.params[0], rel=1e-9), message
+        assert window["rref_se"] == pytest.approx(reference.bse[0], rel=1e-9), message
+    with pytest.raises(InsufficientDataError):
+        fit_rref_windows(index, nee, temperature, night, e0_record, rg=rg, low_light_rg=0.0)
+
+
+def test_low_light_rule_leaves_short_runs_to_interpolation():
+    """A run of night-less windows shorter than LOW_LIGHT_MIN_RUN_DAYS (15 days, the
+    window of Reichstein et al. 2005 over which the temperature response is taken as
+    constant) keeps the interpolation across it; a longer run is fitted at low light.
+    Invented record: nights everywhere except a gap of 8 days and one of 24 days."""
+    from fluxpart.partition import nighttime
+
+    assert nighttime.LOW_LIGHT_MIN_RUN_DAYS == 15.0
+    rng = np.random.default_rng(45)
+    index = pd.date_range("2021-05-01", periods=48 * 80, freq="30min")
+    hour = index.hour.to_numpy() + index.minute.to_numpy() / 60.0
+    days = np.asarray((index - index[0]) / pd.Timedelta(days=1))
+    rg = np.clip(700.0 * np.sin(np.pi * (hour - 4.0) / 16.0), 0.0, None)
+    temperature = 12.0 + 4.0 * np.sin(2 * np.pi * (hour - 9.0) / 24.0)
+    f = np.exp(200.0 * (1.0 / 56.02 - 1.0 / (temperature + 273.15 - 227.13)))
+    nee = 2.5 * f - 0.02 * rg + rng.normal(0.0, 0.2, len(index))
+    night = rg <= 0.0
+    no_night = ((days >= 20) & (days < 28)) | ((days >= 40) & (days < 64))
+    nee[night & no_night] = np.nan
+    windows = nighttime.fit_rref_windows(index, nee, temperature, night,
+                                         np.full(len(index), 200.0), rg=rg, low_light_rg=100.0)
+    centre_days = np.asarray((windows["window_centre"] - index[0]) / pd.Timedelta(days=1))
+    low = windows["source"] == "low_light"
+    assert low.any() and (centre_days[low] > 40).all() and (centre_days[low] < 64).all()
+    # the window wholly inside the 8-day gap (centre day 25.5) is left out: interpolated
+    assert 25.5 not in centre_days and not (low & (centre_days < 40)).any()
