@@ -1392,10 +1392,10 @@ def figure_light_response(drawing, written) -> Figure:
         grid = np.linspace(0.0, max(float(np.nanmax(rg)) if rg.size else 1.0, 1.0), 60)
         vpd_typical = float(np.nanmedian(vpd)) if np.isfinite(vpd).any() else 0.0
         t_typical = float(np.nanmedian(temperature)) if np.isfinite(temperature).any() else 10.0
+        bend = float(window.get("curvature", 0.0))       # 0: the rectangular hyperbola
         model = (lloyd_taylor(np.full_like(grid, t_typical), window["rref"], window["e0"])
                  - light_response(grid, np.full_like(grid, vpd_typical), window["alpha"],
-                                  window["beta0"], window["k"],
-                                  curvature=float(window.get("curvature", 0.0))))
+                                  window["beta0"], window["k"], curvature=bend))
         axis.plot(grid, model, color="#000000", linewidth=1.6)
         # a plain text instead of a legend (a legend per panel costs more than the panel)
         axis.text(0.02, 0.03, f"black line: fit at VPD {vpd_typical:.1f} hPa, "
@@ -1413,7 +1413,8 @@ def figure_light_response(drawing, written) -> Figure:
                 spine.set_edgecolor(_VERMILLION)
                 spine.set_linewidth(1.6)
         axis.text(0.98, 0.97, f"α = {window['alpha']:.4f}\nβ0 = {window['beta0']:.1f}\n"
-                  f"k = {window['k']:.3f}\nRref = {window['rref']:.2f}", transform=axis.transAxes,
+                  f"k = {window['k']:.3f}\nRref = {window['rref']:.2f}"
+                  + (f"\ncurvature = {bend:.2f}" if bend > 0 else ""), transform=axis.transAxes,
                   ha="right", va="top", fontsize=7.5,
                   bbox={"facecolor": "white", "edgecolor": "#bbbbbb", "alpha": 0.85})
         axis.set_xlabel("Global radiation Rg [W m-2]", fontsize=8)
