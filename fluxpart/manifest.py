@@ -225,6 +225,12 @@ def read_manifest(directory) -> dict:
     Use :func:`fluxpart.resultdir.read_folder` to also check the seal and every file.
     """
     path = Path(directory) / MANIFEST_FILE
+    if not Path(directory).exists():
+        raise InputFileError(f"the result folder {str(directory)!r} does not exist: give the "
+                             "folder that fluxpart run or batch wrote (its --out)")
+    if not Path(directory).is_dir():
+        raise InputFileError(f"{str(directory)!r} is a file, not a result folder: give the "
+                             "folder that fluxpart run or batch wrote (its --out)")
     if not path.is_file():
         raise InputFileError(f"{str(path)!r} does not exist: {str(directory)!r} is not a "
                              "fluxpart result folder")

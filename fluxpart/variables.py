@@ -174,15 +174,16 @@ def to_canonical(values, name: str, unit: str | None = None, *,
         return values.copy()
     table = _CONVERSIONS.get(name)
     if table is None:
-        raise UnitError(f"[input.units] {name}: {name!r} is not a canonical variable; "
+        raise UnitError(f"[input.units] {name}: \"{name}\" is not a canonical variable; "
                         f"valid names: {', '.join(sorted(_CONVERSIONS))}")
     if unit not in table:
-        raise UnitError(f"[input.units] {name} = {unit!r} is not a known unit for {name}; "
-                        f"use one of: {', '.join(repr(u) for u in table)}")
+        known = ", ".join('"' + str(u) + '"' for u in table)
+        raise UnitError(f"[input.units] {name} = \"{unit}\" is not a known unit for {name}; "
+                        f"use one of: {known}")
     scale, offset = table[unit]
     if (name, unit) in PER_INTERVAL_UNITS:
         if interval_minutes is None:
-            raise UnitError(f"[input.units] {name} = {unit!r} is an amount per record "
+            raise UnitError(f"[input.units] {name} = \"{unit}\" is an amount per record "
                             "interval; the record interval is needed to convert it")
         scale = scale / (float(interval_minutes) * 60.0)
     with np.errstate(over="ignore", invalid="ignore"):

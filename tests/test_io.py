@@ -394,7 +394,7 @@ def test_site_latitude_out_of_range(tmp_path):
     ("ustar = \"u_fric\"", "ustar = \"t_air\"", ConfigError,
      r"file column 't_air' is mapped twice, to tair and to ustar"),
     ("[processing]", "[input.units]\nvpd = \"psi\"\n[processing]", UnitError,
-     r"\[input.units\] vpd = 'psi'.*'kPa'"),
+     r'\[input.units\] vpd = "psi".*"kPa"'),
     ("[processing]", "[input.units]\nvdp = \"kPa\"\n[processing]", ConfigError,
      r"\[input.units\] vdp.*did you mean 'vpd'"),
 ])
@@ -614,7 +614,7 @@ def test_decimal_comma_hint(tmp_path):
 def test_unknown_unit(tmp_path):
     """An unknown unit raises UnitError listing the accepted units."""
     path = _write(tmp_path / "t.csv", _records())
-    with pytest.raises(UnitError, match=r"\[input.units\] tair = 'F'.*'K'"):
+    with pytest.raises(UnitError, match=r'\[input.units\] tair = "F".*"K"'):
         _read(path, units={"tair": "F"})
 
 

@@ -301,3 +301,15 @@ def test_python_written_result_is_checked_for_integrity_before_refusing(tmp_path
     assert any(d.kind == "hash" and d.table == "annual" for d in report.differences)
     assert main(["verify", str(folder)]) == 1
     assert "annual" in capsys.readouterr().out
+
+
+def test_a_missing_folder_or_a_file_is_named_as_such(tmp_path, capsys):
+    """verify of a folder that does not exist, or of a file, says so in one error line
+    (fresh-eyes campaign: it named the manifest inside the missing folder)."""
+    assert main(["verify", str(tmp_path / "absent")]) == 2
+    assert "the result folder" in capsys.readouterr().err
+    config = tmp_path / "site.toml"
+    config.write_text("[site]\n", encoding="utf-8")
+    assert main(["verify", str(config)]) == 2
+    err = capsys.readouterr().err
+    assert "is a file, not a result folder" in err and err.count("error:") == 1
