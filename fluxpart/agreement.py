@@ -63,8 +63,9 @@ def disagreements(annual: pd.DataFrame, margin: float) -> list[str]:
     """Warnings for the years whose two methods differ by more than `margin`."""
     messages = []
     for year, row in annual.iterrows():
-        if row["methods_agree"]:
-            continue
+        compared = [np.isfinite(row[f"{flux}_relative_difference"]) for flux in _FLUXES]
+        if row["methods_agree"] or not any(compared):
+            continue    # agreeing, or no sums to compare (a year without data)
         parts = [f"{flux.upper()} daytime - nighttime = {row[f'{flux}_method_difference']:+.0f} "
                  f"g C m-2 ({row[f'{flux}_relative_difference']:+.0%})" for flux in _FLUXES]
         messages.append(f"{year}: the daytime and nighttime partitionings disagree by more than "

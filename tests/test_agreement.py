@@ -28,3 +28,18 @@ def test_undefined_difference_does_not_count_as_agreement():
     """A NaN sum (e.g. unfilled NEE) never counts as agreement."""
     table = method_agreement(_annual([np.nan, 1.0], [1.0, 1.0], [1.0, 1.0], [1.0, 1.0]))
     assert table["methods_agree"].tolist() == [False, True]
+
+
+def test_a_year_without_sums_gives_no_disagreement_warning():
+    """A budget year whose sums are all NaN (no data) is not compared, so no 'disagree by
+    +nan%' warning (fresh-eyes campaign: an empty year between two input files)."""
+    import numpy as np
+    import pandas as pd
+
+    from fluxpart.agreement import disagreements, method_agreement
+
+    annual = pd.DataFrame({"gpp_daytime": [np.nan, 1200.0], "gpp_nighttime": [np.nan, 900.0],
+                           "reco_daytime": [np.nan, 1000.0], "reco_nighttime": [np.nan, 700.0]},
+                          index=pd.Index([2020, 2021], name="year"))
+    messages = disagreements(method_agreement(annual, 0.15), 0.15)
+    assert len(messages) == 1 and messages[0].startswith("2021") and "nan" not in messages[0]
