@@ -33,11 +33,6 @@ def test_undefined_difference_does_not_count_as_agreement():
 def test_a_year_without_sums_gives_no_disagreement_warning():
     """A budget year whose sums are all NaN (no data) is not compared, so no 'disagree by
     +nan%' warning (fresh-eyes campaign: an empty year between two input files)."""
-    import numpy as np
-    import pandas as pd
-
-    from fluxpart.agreement import disagreements, method_agreement
-
     annual = pd.DataFrame({"gpp_daytime": [np.nan, 1200.0], "gpp_nighttime": [np.nan, 900.0],
                            "reco_daytime": [np.nan, 1000.0], "reco_nighttime": [np.nan, 700.0]},
                           index=pd.Index([2020, 2021], name="year"))
