@@ -311,14 +311,7 @@ def _chosen_temperature(driver, index, screened, is_night, threshold, config):
         index, np.where(too_calm, np.nan, screened["nee"].to_numpy()),
         screened["tair"].to_numpy(),
         screened["tsoil"].to_numpy() if "tsoil" in screened.columns else None, is_night,
-        e0_window_days=config.e0_window_days, e0_window_step_days=config.e0_window_step_days,
-        e0_min_points=config.e0_min_points,
-        e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
-        e0_max_relative_error=config.e0_max_relative_error,
-        e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
-        rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
-        rref_low_light_rg=config.rref_low_light_rg, rg=_measured_rg(screened),
-        e0_method=config.e0_method)
+        **_nighttime_settings(config, screened["rg"].to_numpy(dtype=float)))
     return choice.driver, choice
 
 
@@ -482,9 +475,19 @@ def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None):
         min_donors=config.gapfill_min_donors, gaps=gaps)
 
 
-def _measured_rg(table):
-    """Measured global radiation [W m-2] of a screened table (NaN where missing)."""
-    return table["rg"].to_numpy(dtype=float)
+def _nighttime_settings(config, rg) -> dict:
+    """Keyword settings of :func:`nighttime.partition_nighttime` from `config`, with the
+    measured global radiation `rg` [W m-2] its low-light Rref rule needs."""
+    return {"e0_window_days": config.e0_window_days,
+            "e0_window_step_days": config.e0_window_step_days,
+            "e0_min_points": config.e0_min_points,
+            "e0_min_temperature_range": config.e0_min_temperature_range,
+            "e0_bounds": config.e0_bounds, "e0_max_relative_error": config.e0_max_relative_error,
+            "e0_best_windows": config.e0_best_windows, "e0_fallback": config.e0_fallback,
+            "rref_window_days": config.rref_window_days,
+            "rref_min_points": config.rref_min_points,
+            "rref_low_light_rg": config.rref_low_light_rg, "rg": rg,
+            "e0_method": config.e0_method}
 
 
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
@@ -514,14 +517,8 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
         night = nighttime.partition_nighttime(
             frame.index, nee_measured, filled["value"].to_numpy(),
             screened[temperature].to_numpy(), temperature_filled, is_night,
-            e0_window_days=config.e0_window_days,
-            e0_window_step_days=config.e0_window_step_days, e0_min_points=config.e0_min_points,
-            e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
-            e0_max_relative_error=config.e0_max_relative_error,
-            e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
-            rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
-            rref_low_light_rg=config.rref_low_light_rg, rg=_measured_rg(screened),
-            respiration_driver=temperature, e0_method=config.e0_method)
+            respiration_driver=temperature,
+            **_nighttime_settings(config, screened["rg"].to_numpy(dtype=float)))
     # the daytime method estimates E0 from its own night windows; where none has the
     # temperature range for it (e.g. a damped soil temperature), the nighttime method's
     # E0 stands in, flagged "fallback" in the daytime parameter table and warned about
@@ -664,9 +661,11 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                 *arguments, threshold, temperature, config, curvature,
                 night_fits.get(temperature) if name == "central" else None,
                 None if name == "central" else outcomes["central"][2])
-            # the u* scenarios keep the central run's light-response curvature, so that
-            # their spread is the u* threshold's alone
-            curvature = float(outcomes["central"][4].parameters["curvature"].iloc[0])
+            if name == "central":
+                # the u* scenarios keep the central run's light-response curvature, so
+                # that their spread is the u* threshold's alone
+                day_parameters = outcomes["central"][4].parameters
+                curvature = float(day_parameters["curvature"].iloc[0])
         except InsufficientDataError as error:
             if name == "central":
                 raise
@@ -809,15 +808,8 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                     index, nee_measured, timeseries["nee_filled"].to_numpy(dtype=float),
                     timeseries[other].to_numpy(dtype=float),
                     timeseries[f"{other}_filled"].to_numpy(dtype=float), is_night,
-                    e0_window_days=config.e0_window_days,
-                    e0_window_step_days=config.e0_window_step_days,
-                    e0_min_points=config.e0_min_points,
-                    e0_min_temperature_range=config.e0_min_temperature_range,
-                    e0_bounds=config.e0_bounds, e0_max_relative_error=config.e0_max_relative_error,
-                    e0_best_windows=config.e0_best_windows, e0_fallback=config.e0_fallback,
-                    rref_window_days=config.rref_window_days, rref_min_points=config.rref_min_points,
-                    rref_low_light_rg=config.rref_low_light_rg, rg=_measured_rg(timeseries),
-                    respiration_driver=other, e0_method=config.e0_method).reco
+                    respiration_driver=other,
+                    **_nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float))).reco
         except FluxpartError:
             other_reco = None
     inputs = uncertainty.record_inputs(

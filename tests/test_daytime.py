@@ -503,7 +503,7 @@ def test_standard_errors_survive_a_window_with_a_non_finite_jacobian():
     rng = np.random.default_rng(3)
     rg = np.tile(np.linspace(20.0, 900.0, 40), (2, 1))
     windows = {"rg": rg, "vpd": np.full_like(rg, 5.0), "factor": np.ones_like(rg),
-               "weight": np.ones_like(rg)}
+               "weight": np.ones_like(rg), "curvature": np.zeros(2)}
     theta = np.array([[0.05, 30.0, 0.0, 3.0], [0.05, 30.0, 0.0, 3.0]])
     modelled = 3.0 - light_response(rg, windows["vpd"], 0.05, 30.0, 0.0, vpd0=10.0)
     windows["nee"] = modelled + rng.normal(0.0, 0.5, rg.shape)
@@ -524,7 +524,7 @@ def _random_packed_problem(seed, count, width):
     shape = (count, width)
     windows = {"rg": rng.uniform(5.0, 1000.0, shape), "vpd": rng.uniform(0.0, 30.0, shape),
                "factor": rng.uniform(0.5, 2.0, shape), "weight": rng.uniform(0.5, 2.0, shape),
-               "nee": rng.normal(0.0, 5.0, shape)}
+               "nee": rng.normal(0.0, 5.0, shape), "curvature": np.zeros(count)}
     mask = rng.random(shape) < 0.7
     theta = np.column_stack([rng.uniform(0.01, 0.1, count), rng.uniform(5.0, 40.0, count),
                              rng.uniform(0.0, 0.1, count), rng.uniform(1.0, 5.0, count)])

@@ -82,6 +82,15 @@ Rules and their sources (``(m)`` = recalled from memory, check against the paper
     against Rref (bare soil, dormant canopies with noise), so neither flux is
     identified.
 
+- **Curvature** (option; default 0, the published rectangular hyperbola). A fixed
+  curvature replaces the rectangular hyperbola by the non-rectangular one
+  (Johnson & Thornley 1984 (m)), whose sharper bend canopies often show (Gilmanov
+  et al. 2003 (m)). ``"fit"`` profiles one curvature per record: every window with
+  enough daytime records is fitted at curvatures 0, 0.1, ..., 0.9, the summed
+  weighted cost of the windows that converged at every value is minimised, and
+  the best grid value is refined by a parabola through it and its neighbours (our
+  choice). The profile also absorbs other bends of the diurnal light response
+  (temperature-limited photosynthesis), which is why it is not the default.
 - Rejected windows are skipped, so their records take the curves of the
   neighbouring windows in use. The fluxes of the two neighbours, not their
   parameters, are interpolated linearly in time between centres (constant
@@ -288,6 +297,12 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
         Also fit the window's measured night NEE (model ``Rref LT(T)``, no
         light) in the daytime fit. Default False: the published method fits
         daytime data only (Lasslop et al. 2010 (m)).
+    curvature : float or "fit", optional
+        Curvature of the light response [1], 0 <= curvature < 1. Default 0: the
+        rectangular hyperbola of Lasslop et al. (2010). Above 0, the
+        non-rectangular hyperbola (Johnson & Thornley 1984, eq. 2 (m)) with
+        ``pmax = beta``. ``"fit"``: one curvature for the record, profiled on the
+        window fits (see the module docstring).
     max_iterations : int, optional
         Levenberg–Marquardt iterations before a window counts as not converged;
         default 200 (our choice).
@@ -339,6 +354,13 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
     Marquardt, D. W. (1963). An algorithm for least-squares estimation of
     nonlinear parameters. Journal of the Society for Industrial and Applied
     Mathematics 11:431–441. doi:10.1137/0111030
+
+    Johnson, I. R. & Thornley, J. H. M. (1984). A model of instantaneous and
+    daily canopy photosynthesis. Journal of Theoretical Biology 107:531–545
+    (the non-rectangular hyperbola of the curvature option) (m).
+
+    Gilmanov, T. G. et al. (2003). Global Biogeochemical Cycles 17(2), 1071
+    (non-rectangular light responses of tower NEE) (m).
     """
     _check_settings(window_days, window_step_days, min_points, k_min_points, vpd0,
                     alpha_bounds, beta0_max, max_iterations)
@@ -390,7 +412,7 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
             weight = 1.0 / np.where(valid, sigma, np.median(sigma[valid]))
     if curvature == "fit":
         # one curvature for the whole record, profiled on the final weights
-        settings["curvature"], _ = _profile_curvature(data, weight, settings)
+        settings["curvature"] = _profile_curvature(data, weight, settings)
     if weight is not None or curvature == "fit":
         fit = _partition(data, weight, settings)
     parameters = _parameter_table(index, fit)
@@ -510,16 +532,14 @@ def _profile_curvature(data, weight, settings):
 
     Returns
     -------
-    curvature : float
-        The chosen curvature [1].
-    profile : numpy.ndarray
-        Summed cost at each grid value [1].
+    float
+        The chosen curvature [1]; 0 where no window could be compared.
     """
     prepared = _prepare(data, weight, {**settings, "curvature": 0.0})
     windows, fitted, mask = prepared["windows"], prepared["fitted"], prepared["mask"]
     rows = np.flatnonzero(fitted)
     if len(rows) == 0:
-        return 0.0, np.full(len(_CURVATURE_GRID), np.nan)
+        return 0.0
     costs = np.empty((len(_CURVATURE_GRID), len(rows)))
     converged_everywhere = np.ones(len(rows), dtype=bool)
     for number, value in enumerate(_CURVATURE_GRID):
@@ -531,7 +551,7 @@ def _profile_curvature(data, weight, settings):
         costs[number], _ = _cost(theta[rows], packed)
         converged_everywhere &= converged[rows] & np.isfinite(costs[number])
     if not converged_everywhere.any():
-        return 0.0, np.full(len(_CURVATURE_GRID), np.nan)
+        return 0.0
     profile = costs[:, converged_everywhere].sum(axis=1)
     best = int(np.argmin(profile))
     chosen = float(_CURVATURE_GRID[best])
@@ -541,7 +561,7 @@ def _profile_curvature(data, weight, settings):
         if bend > 0:
             step = _CURVATURE_GRID[1] - _CURVATURE_GRID[0]
             chosen += 0.5 * step * (below - above) / bend
-    return float(np.clip(chosen, _CURVATURE_GRID[0], _CURVATURE_GRID[-1])), profile
+    return float(np.clip(chosen, _CURVATURE_GRID[0], _CURVATURE_GRID[-1]))
 
 
 def _check_settings(window_days, window_step_days, min_points, k_min_points, vpd0,
@@ -963,8 +983,7 @@ def _packed_fit_data(windows, mask, rows, vpd0) -> dict:
     return {"light": light, "excess": np.where(vpd_excess > 0.0, vpd_excess, 0.0),
             "factor": factor, "nee": pack(windows["nee"]), "weight": weight,
             "factor_weight": factor * weight, "points": points, "inside": picked,
-            "curvature": (windows["curvature"][rows][:, None] if "curvature" in windows
-                          else np.zeros((len(rows), 1)))}
+            "curvature": windows["curvature"][rows][:, None]}
 
 
 def _take_rows(arrays: dict, rows) -> dict:
@@ -1152,7 +1171,7 @@ def _refit_with_night_rref(refit, theta, errors, rmse, fixed, status, reason, rr
                            vpd0, max_iterations):
     """Constrained refit of the chosen windows: Rref fixed at the night Rref."""
     rows = np.flatnonzero(refit)
-    subset = {name: windows[name][rows] for name in _MODEL_INPUTS if name in windows}
+    subset = {name: windows[name][rows] for name in _MODEL_INPUTS}
     mask = usable_day_mask[rows]
     subset = {**subset, "nee": np.where(mask, subset["nee"], 0.0)}
     start = theta0[rows].copy()
