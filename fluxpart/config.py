@@ -195,11 +195,12 @@ class Config:
         they anchor the interpolation (on generated 66° N site-years they moved
         annual Reco by +13 % and −8 %; our choice, measured).
     rref_low_light_rg : float
-        Rg [W m-2] below which an Rref window with fewer than ``rref_min_points``
-        night records (weeks of midnight sun, thin summer nights of hourly
-        records) fits Rref to its measured NEE with a straight light response,
-        ``NEE = Rref f(T) - a Rg``, instead of taking Rref interpolated across it;
-        0 switches this off. Default 100 W m-2 (about 200 µmol m-2 s-1 of PAR):
+        Rg [W m-2] below which the Rref windows of a run of 15 days or more with
+        fewer than ``rref_min_points`` night records each (weeks of midnight sun)
+        fit Rref to their measured NEE with a straight light response,
+        ``NEE = Rref f(T) - a Rg``, instead of taking Rref interpolated across the
+        run (shorter runs are interpolated); 0 switches this off. Default 100 W m-2 (about 200 µmol m-2 s-1 of PAR, at
+        about 2 µmol of PAR photons per joule of global radiation; common practice):
         canopy photosynthesis rises linearly with light at low light (common
         practice), and at high latitude the low sun of the night hours gives such
         records every day. See :func:`fluxpart.partition.nighttime.fit_rref_windows`.

@@ -40,6 +40,8 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
+import pyarrow as pa
+import pyarrow.compute as pc
 
 from ._validate import read_toml, refuse_binary
 from .config import setting_text, suggest_key
@@ -1464,9 +1466,6 @@ def _plain_numbers(text: pd.Series, decimal: str):
     """
     if decimal != ".":
         return None
-    import pyarrow as pa
-    import pyarrow.compute as pc
-
     try:
         cells = pa.array(text, type=pa.string(), from_pandas=True)
         empty = pc.equal(cells, "")

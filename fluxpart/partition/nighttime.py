@@ -880,10 +880,11 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
     rg : array_like, optional
         Measured global radiation [W m-2], for the low-light fit below.
     low_light_rg : float, optional
-        Where a window has fewer than `rref_min_points` night records, Rref is
-        fitted instead to its measured NEE at ``Rg < low_light_rg`` (night records
-        included) with a straight light response, ``NEE = Rref f - a Rg``
-        (see Notes). Default 0: off (night records only).
+        In a run of windows with fewer than `rref_min_points` night records that
+        spans at least :data:`LOW_LIGHT_MIN_RUN_DAYS`, Rref is fitted instead to the
+        measured NEE at ``Rg < low_light_rg`` [W m-2] (night records included) with
+        a straight light response, ``NEE = Rref f - a Rg`` (see Notes). Default 0:
+        off (night records only).
 
     Returns
     -------
@@ -918,8 +919,9 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
 
     Low-light rule (our extension, used only in runs of windows without enough night
     data spanning at least :data:`LOW_LIGHT_MIN_RUN_DAYS`, e.g. weeks of midnight
-    sun; across shorter runs Rref is interpolated as before): at low light canopy photosynthesis rises linearly with
-    light (the light-limited part of the light response; common practice), so
+    sun; across shorter runs Rref is interpolated as before): at low light canopy
+    photosynthesis rises linearly with light (the light-limited part of the light
+    response; common practice), so
     below `low_light_rg` measured NEE is ``Rref f - a Rg`` with the slope ``a`` the
     window's light-use efficiency, and the intercept at ``Rg = 0`` is respiration,
     as night records measure it (the extrapolation to zero light of Kok 1948 (m)).
@@ -968,11 +970,12 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
         mean_e0 = np.sum(e0_pad, axis=1) / counts
     keep = (counts >= min_points) & np.isfinite(rref) & (rref >= 0)
     source = np.full(n_windows, "night", dtype=object)
-    if rg is not None and low_light_rg > 0 and not keep.all():
+    long_runs = _long_runs(~keep, window_seconds)
+    if rg is not None and low_light_rg > 0 and long_runs.any():
         rg = _as_float("rg", rg, length)
         low = _low_light_rref(seconds, starts, window_seconds, nee, temperature, is_night, e0,
                               rg, low_light_rg, min_points)
-        take = _long_runs(~keep, window_seconds) & np.isfinite(low["rref"])
+        take = long_runs & np.isfinite(low["rref"])
         rref, rref_se = np.where(take, low["rref"], rref), np.where(take, low["rref_se"], rref_se)
         counts, mean_e0 = np.where(take, low["points"], counts), np.where(take, low["e0"],
                                                                           mean_e0)
