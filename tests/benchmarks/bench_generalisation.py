@@ -26,6 +26,8 @@ import pandas as pd
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
+from bench_calibration import FLUXES  # noqa: E402  (this folder: flux -> truth column)
+
 import fluxpart  # noqa: E402
 from fluxpart import scenarios  # noqa: E402
 
@@ -49,8 +51,6 @@ VARIANTS = {
                      "long_gap_days": (10, 21)},
     "polar_fen": {**_BASE["high_latitude_fen"], "latitude": (69.0, 72.0)},
 }
-FLUXES = {"nee": "nee", "gpp_nighttime": "gpp", "reco_nighttime": "reco",
-          "gpp_daytime": "gpp", "reco_daytime": "reco"}
 
 
 def generate(seed: int) -> tuple[str, scenarios.SiteYear]:
