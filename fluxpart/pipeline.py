@@ -676,13 +676,16 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         step(f"gap filling and partitioning ({name})")
 
     too_calm, nee_measured, filled, night, day = outcomes["central"]
-    if config.e0_fallback is None and (day.parameters["e0_source"] == "fallback").all():
+    fell_back = day.parameters["e0_source"] == "fallback"
+    if config.e0_fallback is None and fell_back.any():
         warnings.append(
-            f"daytime partitioning: no night window gave an E0 on {temperature} (at least "
-            f"{config.e0_min_points} night records spanning {config.e0_min_temperature_range} K "
-            f"within {max(config.daytime_e0_window_days)} days); the nighttime method's E0 "
-            f"({float(np.median(day.e0)):.0f} K) was used, flagged 'fallback' in the daytime "
-            "parameter table, so the two methods are not independent in their E0")
+            f"daytime partitioning: the night data gave no acceptable E0 on {temperature} in "
+            f"{int(fell_back.sum())} of {len(fell_back)} windows (pooled over the year from "
+            f"windows of at least {config.e0_min_points} night records spanning "
+            f"{config.e0_min_temperature_range} K within "
+            f"{max(config.daytime_e0_window_days)} days); the nighttime method's E0 "
+            f"({float(np.median(day.e0)):.0f} K) was used there, flagged 'fallback' in the "
+            "daytime parameter table, so the two methods are not independent in their E0")
     flags = screens.flags.assign(nee_low_ustar=too_calm)
     reason = screens.reason.to_numpy().copy()
     reason[(reason == 0) & too_calm] = _REASON_LOW_USTAR

@@ -391,12 +391,13 @@ _PARAMETERS = {
     "reason": ("", "why a fit was rejected or replaced, or a note on an accepted one"),
     "status": ("", "daytime window: accepted (own fit), replaced (refit with Rref fixed at the "
                "night Rref) or rejected (parameters interpolated from neighbouring windows)"),
-    "e0_points": ("1", "night records of the E0 fit (0 where E0 was interpolated)"),
-    "e0_window_days": ("d", "width of the night window centred on the daytime window that "
-                       "gave E0 (empty where interpolated)"),
-    "e0_source": ("", "E0 from the window's own night data (window), a wider night window "
-                  "(widened), interpolated between windows, the e0_fallback setting (fallback), or "
-                  "supplied by the caller"),
+    "e0_points": ("1", "night records of the window's own E0 fit (0 where too few)"),
+    "e0_window_days": ("d", "width of the night window centred on the daytime window of its "
+                       "own E0 fit (empty where too few records)"),
+    "e0_window": ("K", "the window's own E0 estimate, which entered the year's pool"),
+    "e0_window_se": ("K", "standard error of the window's own E0 estimate"),
+    "e0_source": ("", "E0 pooled over the windows of the year (year) or of all years "
+                  "(all_years), the e0_fallback setting (fallback), or supplied by the caller"),
     "rref_night": (FLUX, "Rref of the window's night NEE with its E0, least squares (CO2)"),
     "rref_night_se": (FLUX, "standard error of the night Rref (CO2)"),
     "weighted": ("1", "fit weighted by the random error of NEE"),
