@@ -60,14 +60,24 @@ def method_agreement(budget: pd.DataFrame, margin: float = 0.15) -> pd.DataFrame
 
 
 def disagreements(annual: pd.DataFrame, margin: float) -> list[str]:
-    """Warnings for the years whose two methods differ by more than `margin`."""
+    """Warnings for the years whose two methods differ by more than `margin`, or that one
+    method left without an annual sum of a flux the other has."""
     messages = []
     for year, row in annual.iterrows():
-        compared = [np.isfinite(row[f"{flux}_relative_difference"]) for flux in _FLUXES]
-        if row["methods_agree"] or not any(compared):
+        relative = {flux: row[f"{flux}_relative_difference"] for flux in _FLUXES}
+        compared = [flux for flux in _FLUXES if np.isfinite(relative[flux])]
+        if row["methods_agree"] or not compared:
             continue    # agreeing, or no sums to compare (a year without data)
-        parts = [f"{flux.upper()} daytime - nighttime = {row[f'{flux}_method_difference']:+.0f} "
-                 f"g C m-2 ({row[f'{flux}_relative_difference']:+.0%})" for flux in _FLUXES]
-        messages.append(f"{year}: the daytime and nighttime partitionings disagree by more than "
-                        f"agreement_margin = {margin:.0%}: {'; '.join(parts)}")
+        missing = [flux.upper() for flux in _FLUXES if flux not in compared]
+        beyond = [flux for flux in compared if abs(relative[flux]) > margin]
+        if beyond:
+            parts = [f"{flux.upper()} daytime - nighttime = "
+                     f"{row[f'{flux}_method_difference']:+.0f} g C m-2 ({relative[flux]:+.0%})"
+                     for flux in compared]
+            parts += [f"{name} not compared (a method gave no annual sum)" for name in missing]
+            messages.append(f"{year}: the daytime and nighttime partitionings disagree by more "
+                            f"than agreement_margin = {margin:.0%}: {'; '.join(parts)}")
+        else:
+            messages.append(f"{year}: the daytime and nighttime partitionings could not be "
+                            f"compared for {' and '.join(missing)}: a method gave no annual sum")
     return messages

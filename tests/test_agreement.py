@@ -38,3 +38,14 @@ def test_a_year_without_sums_gives_no_disagreement_warning():
                           index=pd.Index([2020, 2021], name="year"))
     messages = disagreements(method_agreement(annual, 0.15), 0.15)
     assert len(messages) == 1 and messages[0].startswith("2021") and "nan" not in messages[0]
+
+
+def test_a_flux_one_method_left_unsummed_is_reported_as_not_compared():
+    """A year where one method has no GPP sum and Reco agrees is 'not compared', not
+    'disagree by +nan%' (seen in a run with no night data and a fixed E0)."""
+    annual = pd.DataFrame({"gpp_daytime": [np.nan], "gpp_nighttime": [900.0],
+                           "reco_daytime": [1000.0], "reco_nighttime": [1010.0]},
+                          index=pd.Index([2021], name="year"))
+    messages = disagreements(method_agreement(annual, 0.15), 0.15)
+    assert messages == ["2021: the daytime and nighttime partitionings could not be compared "
+                        "for GPP: a method gave no annual sum"]
