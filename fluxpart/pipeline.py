@@ -536,7 +536,9 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
         e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
         e0_max_relative_error=config.e0_max_relative_error, e0_fallback=day_e0_fallback,
         night_min_points=config.daytime_night_min_points,
-        consistency_z=config.daytime_consistency_z, night_in_fit=config.daytime_night_in_fit,
+        consistency_z=config.daytime_consistency_z,
+        rref_max_relative_error=config.daytime_rref_max_relative_error,
+        night_in_fit=config.daytime_night_in_fit,
         curvature=curvature)
     return too_calm, nee_measured, filled, night, day
 

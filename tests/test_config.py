@@ -250,6 +250,7 @@ def test_every_numeric_setting_refuses_absurd_values(name, absurd):
     ("night_rg_threshold", 50.0, 60.0),
     # 10 standard errors: a two-sided normal chance of 1.5e-23; inf stays the documented "off"
     ("daytime_consistency_z", 10.0, 11.0),
+    ("daytime_rref_max_relative_error", 0.05, 0.04),
 ])
 def test_bounds_hold_at_their_edge(name, edge, beyond):
     """A bound's own value is accepted and the next value beyond it refused."""
