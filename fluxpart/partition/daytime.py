@@ -853,11 +853,15 @@ def _profile_e0(y, x, w, points, bounds, block, blocks):
     """
     w2 = w**2
     w2y = w2 * y
-    members = [block == b for b in range(blocks)]
+    rows = y.shape[0]
+    cells = (np.arange(rows)[:, None] * blocks + block).ravel()
     yy = (w2y * y).sum(axis=1)
 
     def block_sums(values):
-        return np.stack([np.where(m, values, 0.0).sum(axis=1) for m in members], axis=1)
+        if blocks == 1:
+            return values.sum(axis=1)[:, None]
+        return np.bincount(cells, weights=values.ravel(),
+                           minlength=rows * blocks).reshape(rows, blocks)
 
     def profile(e0, f=None):
         if f is None:
