@@ -423,8 +423,8 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
     supplied_e0 = None if e0 is None else _supplied_e0(e0, n, index)
     arrhenius = _arrhenius(temperature, tref_kelvin, t0_kelvin)
     measured = np.isfinite(nee) & np.isfinite(arrhenius)
-    data = {"days": days, "origin": index[0].normalize(), "nee": nee, "rg": rg, "vpd": vpd, "temperature": temperature,
-            "arrhenius": arrhenius, "supplied_e0": supplied_e0,
+    data = {"days": days, "origin": index[0].normalize(), "nee": nee, "rg": rg, "vpd": vpd,
+            "temperature": temperature, "arrhenius": arrhenius, "supplied_e0": supplied_e0,
             "usable_day": measured & ~night & np.isfinite(vpd) & np.isfinite(rg) & (rg > 0),
             "usable_night": measured & night}
     settings = {"window_days": window_days, "window_step_days": window_step_days,
