@@ -11,7 +11,7 @@ present and named as absent otherwise.
 matplotlib (the ``report`` extra) is used on the Agg canvas without pyplot and
 without a layout engine: every figure has fixed margins, which keeps drawing
 fast (no tight or constrained layout passes). Figures are written as 8-bit
-palette PNG files (zlib level 6) without timestamp or software tag, so the same
+palette PNG files (zlib level 3) without timestamp or software tag, so the same
 folder gives the same bytes.
 
 Speed (issue 17): the report is ten figures, so each has a budget of about a tenth
@@ -35,6 +35,7 @@ from __future__ import annotations
 import gc
 import io
 import re
+import sys
 import textwrap
 from dataclasses import dataclass, field
 
@@ -157,8 +158,28 @@ class Written:
 # --------------------------------------------------------------------------- helpers
 
 
-def _matplotlib():
-    """Import matplotlib's object-oriented parts, or explain how to install them."""
+def _matplotlib(*, setter_docs=True):
+    """Import matplotlib's object-oriented parts, or explain how to install them.
+
+    With ``setter_docs=False`` and matplotlib not yet imported, matplotlib is imported
+    without the property lists it writes into the docstrings of every artist class's
+    ``set`` method (``matplotlib.artist.kwdoc``, which inspects every setter of every
+    class: about 0.15 s, a third of importing matplotlib). For the ``report`` command
+    only, a process that shows no docstring and ends after drawing; the docstrings
+    then say less in that process and nothing else changes.
+    """
+    if not setter_docs and "matplotlib.figure" not in sys.modules:
+        try:
+            from matplotlib import artist
+        except ImportError:
+            artist = None
+        kwdoc = getattr(artist, "kwdoc", None)
+        if kwdoc is not None:
+            artist.kwdoc = lambda *args, **kwargs: ""
+            try:
+                return _matplotlib()
+            finally:
+                artist.kwdoc = kwdoc
     try:
         import matplotlib
         from matplotlib import colors, dates, ticker
@@ -219,6 +240,13 @@ def _text_cache_canvas(canvas_class):
         cache[key] = value
         return value
 
+    def rendered(font, antialiased):
+        """The bitmap of the text last set on `font`, its descent and offsets [px]."""
+        font.draw_glyphs_to_bitmap(antialiased=antialiased)
+        left, top = font.get_bitmap_offset()
+        return (np.array(font.get_image(), dtype=np.uint8), font.get_descent() / 64.0,
+                left / 64.0, top / 64.0)
+
     class CachedTextRenderer(backend_agg.RendererAgg):
         def _get_font_height_metrics(self, prop):
             # the font's ascent, descent and line gap as matplotlib's text layout reads
@@ -250,8 +278,15 @@ def _text_cache_canvas(canvas_class):
             key = text_key(self, s, prop)
             extent = _TEXT_EXTENTS.get(key)
             if extent is None:
-                extent = remember(_TEXT_EXTENTS, key,
-                                  super().get_text_width_height_descent(s, prop, ismath))
+                # as RendererAgg measures (3.11); shaping is most of a text's cost, so the
+                # bitmap an antialiased draw of it needs is rendered from the same shaping
+                font = self._prepare_font(prop)
+                font.set_text(s, 0.0, flags=backend_agg.get_hinting_flag())
+                width, height = font.get_width_height()
+                extent = remember(_TEXT_EXTENTS, key, (width / 64.0, height / 64.0,
+                                                       font.get_descent() / 64.0))
+                if key not in _TEXT_BITMAPS:
+                    remember(_TEXT_BITMAPS, key, rendered(font, True))
             return extent
 
         def draw_text(self, gc, x, y, s, prop, angle, ismath=False, mtext=None):
@@ -264,11 +299,7 @@ def _text_cache_canvas(canvas_class):
             if entry is None:
                 font = self._prepare_font(prop)
                 font.set_text(s, 0, flags=backend_agg.get_hinting_flag())
-                font.draw_glyphs_to_bitmap(antialiased=gc.get_antialiased())
-                left, top = font.get_bitmap_offset()
-                entry = remember(_TEXT_BITMAPS, key, (
-                    np.array(font.get_image(), dtype=np.uint8), font.get_descent() / 64.0,
-                    left / 64.0, top / 64.0))
+                entry = remember(_TEXT_BITMAPS, key, rendered(font, gc.get_antialiased()))
             image, descent, left, top = entry
             x = round(x + left + descent * math.sin(math.radians(angle)))
             y = round(y + top + descent * math.cos(math.radians(angle)))
@@ -288,12 +319,36 @@ def _text_cache_canvas(canvas_class):
     return CachedTextCanvas
 
 
+def _outermost(labels, renderer):
+    """Of the tick labels of one axis side, those that can reach farthest from the axis.
+
+    Labels of one side share their font, alignment, rotation and anchor line, so
+    unrotated one-line texts reach farthest when widest (labels beside a vertical
+    axis) or tallest (beside a horizontal one); only those are measured in full.
+    Rotated, multi-line or math labels are all returned.
+    """
+    if any(label.get_rotation() % 360 or "\n" in label.get_text() or "$" in label.get_text()
+           for label in labels):
+        return labels
+    prop = labels[0].get_fontproperties()
+    sizes = [renderer.get_text_width_height_descent(label.get_text(), prop, False)
+             for label in labels]
+    widest = max(width for width, _, _ in sizes)
+    tallest = max(height + descent for _, height, descent in sizes)
+    return [label for label, (width, height, descent) in zip(labels, sizes, strict=True)
+            if width == widest or height + descent == tallest]
+
+
 class Drawing:
     """matplotlib modules plus the helpers every figure uses."""
 
     def __init__(self):
         (self.mpl, self.colors, self.dates, self.ticker, self._canvas,
          self._figure) = _matplotlib()
+        from matplotlib import collections, lines, text, transforms
+
+        self._collections, self._lines, self._text = collections, lines, text
+        self._transforms = transforms
 
     def figure(self, width, height, **margins):
         figure = self._figure(figsize=(width, height), dpi=_DPI)
@@ -308,15 +363,140 @@ class Drawing:
         from PIL import Image
 
         canvas = figure.canvas
+        self.light_ticks(figure, canvas.get_renderer())
         canvas.draw()
         image = Image.frombuffer("RGBA", canvas.get_width_height(), canvas.buffer_rgba(),
                                  "raw", "RGBA", 0, 1).convert("RGB")
         palette = image.quantize(colors=256, method=Image.Quantize.FASTOCTREE,
                                  dither=Image.Dither.NONE)
         buffer = io.BytesIO()
-        # zlib level 6: a tenth of the CPU of level 9 for files about 10 % larger
-        palette.save(buffer, format="PNG", compress_level=6)
+        # zlib level 3: 40 % of the CPU of level 6 (33 vs 83 ms for the ten figures of a
+        # demo year) for files 17 % larger (449 vs 383 KiB); level 9 took 532 ms, 351 KiB
+        palette.save(buffer, format="PNG", compress_level=3)
         return buffer.getvalue()
+
+    def light_ticks(self, figure, renderer):
+        """Draw the major ticks of every axis as one artist per kind instead of five per tick.
+
+        matplotlib builds every tick as five artists (two tick marks, a grid line, two
+        labels), about 2.5 ms a tick here: the largest part of drawing a figure. This
+        takes the ticks each axis would draw (its locator and formatter at the final
+        view limits and axes positions, the ticks inside the view) and the look of its
+        first tick, and draws the same marks as one marker line per side, the grid as
+        one line collection and one text per label; the axis then draws no ticks of
+        its own. Axis labels move out by the labels' extent and offset texts go where
+        matplotlib puts them. Called once per figure, just before it is drawn.
+        """
+        shown = [axes for axes in figure.axes if axes.get_visible() and axes.axison]
+        for axes in shown:  # the positions drawing gives (colour bars shrink for extends)
+            locator = axes.get_axes_locator()
+            axes.apply_aspect(locator(axes, renderer) if locator else None)
+        # every axis' ticks first: shared axes share one locator, replaced below
+        plans = [(axes, axis, self._tick_plan(axis)) for axes in shown
+                 for axis in (axes.xaxis, axes.yaxis) if axis.get_visible()]
+        for _, axis, _ in plans:
+            axis.set_major_locator(self.ticker.NullLocator())
+            axis.set_major_formatter(self.ticker.NullFormatter())
+        for axes, axis, plan in plans:
+            self._draw_ticks(axes, axis, renderer, *plan)
+
+    def _tick_plan(self, axis):
+        """(locations, labels, offset text) of the major ticks `axis` would draw."""
+        locations = np.asarray(axis.get_major_locator()(), dtype=float)
+        formatter = axis.get_major_formatter()
+        labels = formatter.format_ticks(locations)   # all locations, as matplotlib does
+        offset = formatter.get_offset()
+        if not locations.size:
+            return locations, [], offset
+        low, high = sorted(axis.get_view_interval())
+        scale = axis.get_transform()
+        low_t, high_t = scale.transform(np.array([low, high]))
+        tolerance = (high_t - low_t) * 1e-10      # matplotlib's _interval_contains_close
+        placed = scale.transform(locations)
+        inside = (placed >= low_t - tolerance) & (placed <= high_t + tolerance)
+        return (locations[inside],
+                [label for label, keep in zip(labels, inside, strict=True) if keep], offset)
+
+    def _draw_ticks(self, axes, axis, renderer, locations, labels, offset):
+        """Add the tick marks, grid lines, labels and offset text of one axis to `axes`."""
+        lines, text, collections = self._lines, self._text, self._collections
+        prototype = axis.majorTicks[0]
+        zorder = axis.get_zorder()
+        along_x = axis.axis_name == "x"
+
+        def place(values, across):
+            fixed = np.full(len(values), float(across))
+            return (values, fixed) if along_x else (fixed, values)
+
+        grid, unclipped = prototype.gridline, []
+        if locations.size and grid.get_visible():
+            segments = np.stack([np.stack(place(locations, 0.0), axis=1),
+                                 np.stack(place(locations, 1.0), axis=1)], axis=1)
+            axes.add_artist(collections.LineCollection(   # clipped to the axes, as grids are
+                segments, transform=grid.get_transform(), colors=[grid.get_color()],
+                linewidths=grid.get_linewidth(), linestyles=grid.get_linestyle(),
+                alpha=grid.get_alpha(), zorder=zorder))
+        side_labels = {1: [], 2: []}
+        for side, mark, label in ((1, prototype.tick1line, prototype.label1),
+                                  (2, prototype.tick2line, prototype.label2)):
+            if not locations.size:
+                break
+            if mark.get_visible() and mark.get_markersize() > 0:
+                unclipped.append(lines.Line2D(
+                    *place(locations, side - 1.0), transform=mark.get_transform(),
+                    linestyle="none", marker=mark.get_marker(),
+                    markersize=mark.get_markersize(), markeredgewidth=mark.get_markeredgewidth(),
+                    color=mark.get_color(), zorder=zorder, clip_on=False))
+            if label.get_visible():
+                for value, words in zip(locations, labels, strict=True):
+                    if words:
+                        x, y = place(np.array([value]), side - 1.0)
+                        side_labels[side].append(text.Text(
+                            float(x[0]), float(y[0]), words, transform=label.get_transform(),
+                            fontproperties=label.get_fontproperties(), color=label.get_color(),
+                            horizontalalignment=label.get_horizontalalignment(),
+                            verticalalignment=label.get_verticalalignment(),
+                            rotation=label.get_rotation(),
+                            rotation_mode=label.get_rotation_mode(), zorder=zorder,
+                            clip_on=False))
+        unclipped += side_labels[1] + side_labels[2]
+        if unclipped:
+            # add_artist gives an artist without a clip path the axes' own, made anew for
+            # each; these draw unclipped, so one shared path spares that work
+            shared = self._transforms.TransformedPatchPath(axes.patch)
+            for artist in unclipped:
+                artist.set_clip_path(shared)
+                axes.add_artist(artist)   # add_artist: the data limits stay as they are
+        # the axis label and the offset text stand clear of the labels, as matplotlib
+        # places them from the tick labels' extents
+        position = axis.get_label_position()
+        near = side_labels[1 if position in ("bottom", "left") else 2]
+        boxes = []
+        if near and ((axis.label.get_visible() and axis.label.get_text())
+                     or (offset and position == "bottom")):
+            boxes = [label.get_window_extent(renderer) for label in _outermost(near, renderer)]
+        spine = axes.spines.get(position)
+        edge = (spine if spine is not None and spine.get_visible() else axes).get_window_extent(
+            renderer)
+        depth = {"bottom": lambda b: edge.y0 - b.y0, "top": lambda b: b.y1 - edge.y1,
+                 "left": lambda b: edge.x0 - b.x0, "right": lambda b: b.x1 - edge.x1}[position]
+        axis.labelpad += max([0.0] + [depth(box) for box in boxes]) * 72.0 / axes.figure.dpi
+        if offset:
+            pad = axis.OFFSETTEXTPAD * axes.figure.dpi / 72.0
+            source = axis.offsetText
+            if along_x:
+                bottoms = [box.y0 for box in (boxes if position == "bottom" else [])]
+                y = min(bottoms + [axes.bbox.ymin]) - pad
+            else:
+                outline = axes.spines.get("outline")
+                y = (outline.get_window_extent(renderer) if outline is not None
+                     else axes.bbox).ymax + pad
+            axes.add_artist(text.Text(
+                source.get_position()[0], y, offset, transform=source.get_transform(),
+                fontproperties=source.get_fontproperties(), color=source.get_color(),
+                horizontalalignment=source.get_horizontalalignment(),
+                verticalalignment=source.get_verticalalignment(), zorder=zorder,
+                clip_on=False))
 
     def coloured_image(self, axis, grid, colormap, norm, extent):
         """Draw a (day, time of day) grid as an image coloured here, once.
@@ -348,6 +528,16 @@ class Drawing:
         low = min(float(np.percentile(values, 0.5)), -1e-3)
         high = max(float(np.percentile(values, 99.5)), 1e-3)
         return self.colors.TwoSlopeNorm(vcenter=0.0, vmin=low, vmax=high)
+
+    def fixed_ticks(self, axis, locations, labels=None):
+        """Major ticks of `axis` (an ``Axis``) at `locations`, labelled `labels` if given.
+
+        What ``Axis.set_ticks`` gives for locations inside the view limits, without
+        building each tick's artists up front (:meth:`light_ticks` draws them).
+        """
+        axis.set_major_locator(self.ticker.FixedLocator(locations))
+        if labels is not None:
+            axis.set_major_formatter(self.ticker.FixedFormatter(labels))
 
     def few_ticks(self, axis, x=5, y=5):
         """At most about `x` and `y` ticks: every tick is a few artists to build and draw."""
@@ -759,7 +949,7 @@ def figure_fill_quality(drawing, written, interval) -> Figure:
     drawing.coloured_image(top, grid, colormap, norm, (start, start + n_days, 0.0, 24.0))
     bottom.set_xlim(start, start + n_days)
     top.set_ylabel("Time of day [h]")
-    top.set_yticks([0, 6, 12, 18, 24])
+    drawing.fixed_ticks(top.yaxis, [0, 6, 12, 18, 24])
     top.set_title("NEE fill quality of every record (grey hatch: no record in the file)",
                   loc="left")
     # records per day and category: one bincount over (day, category) cells
@@ -773,7 +963,7 @@ def figure_fill_quality(drawing, written, interval) -> Figure:
     bottom.stackplot(x, *[share[:, names.index(n)] for n in present],
                      colors=[colours[n] for n in present], labels=present, linewidth=0)
     bottom.set_ylim(0, 1)
-    bottom.set_yticks([0.0, 0.5, 1.0])
+    drawing.fixed_ticks(bottom.yaxis, [0.0, 0.5, 1.0])
     bottom.set_ylabel("Share of the day")
     bottom.set_title("Daily share by fill quality", loc="left")
     bottom.legend(loc="upper center", bbox_to_anchor=(0.5, -0.22), ncols=len(present))
@@ -828,7 +1018,7 @@ def figure_heatmaps(drawing, written, interval) -> Figure:
             axis.set_xlim(start, start + n_days)
             axis.set_ylim(0.0, 24.0)
         row_axes[0].set_ylabel("Time of day [h]")
-        row_axes[0].set_yticks([0, 6, 12, 18, 24])
+        drawing.fixed_ticks(row_axes[0].yaxis, [0, 6, 12, 18, 24])
         row_axes[1].set_yticks([])
         if image is not None:
             box = row_axes[1].get_position()
@@ -984,8 +1174,9 @@ def figure_clock(drawing, written, interval) -> Figure:
         axis.vlines(np.arange(ncols) + 0.5, 0.0, 1.0, color="#999999", linewidth=0.6,
                     transform=axis.get_xaxis_transform())
         axis.set_xlim(0, ncols)
-        axis.set_xticks((np.arange(ncols)[:, None] + np.array([0.25, 0.5, 0.75])).ravel(),
-                        ["6", "12", "18"] * ncols)
+        drawing.fixed_ticks(axis.xaxis, (np.arange(ncols)[:, None]
+                                         + np.array([0.25, 0.5, 0.75])).ravel(),
+                            ["6", "12", "18"] * ncols)
         axis.grid(False, axis="x")
         axis.tick_params(labelsize=7.5)
         axis.set_ylabel("[W m-2]")
@@ -1075,7 +1266,8 @@ def figure_diurnal(drawing, written, interval) -> Figure:
         axis.axvline(position, color="#888888", linewidth=0.8)
     axis.axhline(0.0, color="#888888", linewidth=0.6)
     axis.set_xlim(0, len(months))
-    axis.set_xticks(np.arange(len(months)) + 0.5, [_MONTHS[m - 1][:3] for m in months])
+    drawing.fixed_ticks(axis.xaxis, np.arange(len(months)) + 0.5,
+                        [_MONTHS[m - 1][:3] for m in months])
     axis.tick_params(axis="x", length=0)
     axis.grid(False, axis="x")
     axis.set_ylabel(f"[{_FLUX_UNIT}]")
