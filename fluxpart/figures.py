@@ -360,11 +360,16 @@ class Drawing:
 
     def png(self, figure) -> bytes:
         """Render to an 8-bit palette PNG (no text chunks): small, deterministic bytes."""
-        from PIL import Image
-
         canvas = figure.canvas
         self.light_ticks(figure, canvas.get_renderer())
         canvas.draw()
+        return self.encode(canvas)
+
+    @staticmethod
+    def encode(canvas) -> bytes:
+        """The drawn `canvas` as an 8-bit palette PNG without text chunks."""
+        from PIL import Image
+
         image = Image.frombuffer("RGBA", canvas.get_width_height(), canvas.buffer_rgba(),
                                  "raw", "RGBA", 0, 1).convert("RGB")
         palette = image.quantize(colors=256, method=Image.Quantize.FASTOCTREE,
@@ -399,6 +404,8 @@ class Drawing:
             axis.set_major_formatter(self.ticker.NullFormatter())
         for axes, axis, plan in plans:
             self._draw_ticks(axes, axis, renderer, *plan)
+            if not (axis.label.get_visible() and axis.label.get_text()):
+                axis.set_visible(False)   # nothing left for it to draw
 
     def _tick_plan(self, axis):
         """(locations, labels, offset text) of the major ticks `axis` would draw."""
@@ -695,9 +702,12 @@ def fill_category(values) -> np.ndarray:
         for code, name in _QUALITY_CODES.items():
             out[codes == code] = name
         return out
-    text = series.astype("string").str.strip().fillna("unfilled").to_numpy(dtype=object)
+    # each distinct label once (a year has 17,520 records but a handful of labels);
+    # missing values (code -1) are "unfilled"
+    codes, labels = pd.factorize(series)
     known = {name.lower(): name for name, _ in FILL_CATEGORIES}
-    return np.array([known.get(str(v).lower(), str(v)) for v in text], dtype=object)
+    names = [known.get(text.lower(), text) for text in (str(label).strip() for label in labels)]
+    return np.array([*names, "unfilled"], dtype=object)[codes]
 
 
 _PERIOD_COLOURS = (_BLUE, _VERMILLION, _GREEN, _BLACK, _PURPLE, _ORANGE, _SKY)
