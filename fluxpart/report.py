@@ -875,6 +875,7 @@ def command_report(args) -> int:
         0 on success; errors are raised as :class:`~fluxpart.errors.FluxpartError`
         and turned into exit status 2 by :func:`fluxpart.cli.main`.
     """
+    from .figures import _matplotlib
     from .progress import Progress, progress_enabled
 
     enabled = progress_enabled(bool(getattr(args, "quiet", False)))
@@ -883,6 +884,7 @@ def command_report(args) -> int:
     collecting = gc.isenabled()
     gc.disable()
     try:
+        _matplotlib(setter_docs=False)
         with Progress(len(FIGURES) + 1, "fluxpart report", enabled=enabled) as progress:
             path = build_report(args.directory, getattr(args, "out", None),
                                 progress=progress.advance)

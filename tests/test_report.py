@@ -644,6 +644,56 @@ def test_figure_bytes_do_not_depend_on_the_text_cache(folder):
     assert cold == warm
 
 
+def _tick_test_figure(drawing):
+    """Axes of every tick kind the figures use: dates, shared and twin axes, fixed labels,
+    an axis with an offset text, a colour bar with extensions."""
+    figure = drawing.figure(8.0, 6.0, left=0.1, right=0.85, top=0.95, bottom=0.1, hspace=0.5)
+    top, middle, bottom = figure.subplots(3, 1, sharey=False)
+    days = pd.date_range("2021-01-01", periods=365, freq="D")
+    top.plot(days, np.sin(np.arange(365) / 30.0), label="a line")
+    drawing.date_axis(top, ticks=13)
+    drawing.few_ticks(top, x=0, y=4)
+    top.set_ylabel("[unit]")
+    twin = top.twinx()
+    twin.plot(days, np.arange(365.0) / 1e4, color="green")
+    twin.set_ylabel("other [unit]")
+    twin.grid(False)
+    middle.plot(np.arange(10.0), 1e5 + np.arange(10.0))     # values that need an offset
+    middle.set_xlabel("x [unit]")
+    drawing.fixed_ticks(bottom.xaxis, [0.5, 1.5, 2.5], ["Jan", "Feb", "Mar"])
+    bottom.tick_params(axis="x", length=0, labelsize=7.5)
+    bottom.grid(False, axis="x")
+    image = bottom.imshow(np.arange(12.0).reshape(2, 6), extent=(0, 3, 0, 1), aspect="auto")
+    bar_axis = figure.add_axes((0.88, 0.1, 0.02, 0.2))
+    figure.colorbar(image, cax=bar_axis, extend="both").set_label("[bar]")
+    return figure
+
+
+def test_light_ticks_draw_what_matplotlib_draws():
+    """The figures' ticks (one artist per kind) give matplotlib's own pixels (issue 17)."""
+    # reference: matplotlib 3.11's own tick drawing (Axis.draw) of the same figure; the
+    # two may differ only where a colour bar's edge tick meets its outline (a pixel
+    # column of grid colour), so at most 0.01 % of the pixels
+    drawing = figures.Drawing()
+    pictures = []
+    with drawing.mpl.rc_context():
+        drawing.mpl.rcdefaults()
+        drawing.mpl.rcParams.update(figures._RC)
+        for light in (False, True):
+            figure = _tick_test_figure(drawing)
+            if light:
+                drawing.light_ticks(figure, figure.canvas.get_renderer())
+                # matplotlib's own ticks are off: the light figure's ticks are ours
+                assert all(isinstance(axis.get_major_locator(), drawing.ticker.NullLocator)
+                           for axes in figure.axes for axis in (axes.xaxis, axes.yaxis))
+            figure.canvas.draw()
+            pictures.append(np.asarray(figure.canvas.buffer_rgba()).copy())
+    plain, light = pictures
+    assert plain.shape == light.shape
+    differing = (plain != light).any(axis=2)
+    assert differing.mean() <= 1e-4, f"{differing.sum()} pixels differ"
+
+
 def test_page_is_light(folder):
     """One self-contained file well under 1 MB for a site-year (figures as palette PNG)."""
     assert folder["page"].stat().st_size < 1_000_000

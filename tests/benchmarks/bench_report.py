@@ -14,7 +14,9 @@ Prints, for ``fluxpart.report.build_report`` on one result folder:
 - in this process: the CPU time of importing matplotlib, of reading the folder, of
   each figure in a first pass (drawing, palette PNG encoding; texts are rendered
   as they first appear, as in the command), of each figure drawn again (every text
-  already rendered), of the page, and each figure's PNG size.
+  already rendered), of the page, and each figure's PNG size; the first pass is
+  split into building the figure (axes, curves, legends), the tick pass
+  (``Drawing.light_ticks``), drawing on the canvas and PNG encoding.
 
 CPU time is the steadier figure on a shared machine; wall time includes waiting for
 the cores.
@@ -23,6 +25,7 @@ the cores.
 from __future__ import annotations
 
 import argparse
+import contextlib
 import shutil
 import statistics
 import sys
@@ -72,20 +75,62 @@ def _in_process(directory: Path, scratch: Path) -> None:
     cpu = time.process_time()
     written = read_written(directory)
     print(f"read the folder: {time.process_time() - cpu:.2f} s CPU")
-    passes = []
+    passes, parts = [], []
     for _ in range(2):
-        marks = [time.process_time()]
-        figures = draw_figures(written, lambda marks=marks: marks.append(time.process_time()))
+        marks, split = [time.process_time()], []
+        with _timed_parts(split):
+            figures = draw_figures(written,
+                                   lambda marks=marks: marks.append(time.process_time()))
         passes.append([end - start for start, end in zip(marks[:-1], marks[1:], strict=True)])
-    print(f"{'figure':24s} {'first':>6s} {'again':>6s} {'PNG KiB':>8s}")
-    for figure, first, again in zip(figures, *passes, strict=True):
-        print(f"{figure.name:24s} {first:6.2f} {again:6.2f} {len(figure.png) / 1024:8.1f}")
+        parts.append(split)
+    print(f"{'figure':24s} {'first':>6s} {'again':>6s} {'PNG KiB':>8s}   first pass: "
+          f"{'build':>5s} {'ticks':>5s} {'draw':>5s} {'PNG':>5s}")
+    for figure, first, again, (ticks, draw, encode) in zip(figures, *passes, parts[0],
+                                                           strict=True):
+        print(f"{figure.name:24s} {first:6.2f} {again:6.2f} {len(figure.png) / 1024:8.1f}"
+              f"               {first - ticks - draw - encode:5.2f} {ticks:5.2f} {draw:5.2f} "
+              f"{encode:5.2f}")
+    totals = [sum(column) for column in zip(*parts[0], strict=True)]
     print(f"{'all ' + str(len(FIGURES)) + ' figures':24s} {sum(passes[0]):6.2f} "
-          f"{sum(passes[1]):6.2f}")
+          f"{sum(passes[1]):6.2f} {'':8s}               "
+          f"{sum(passes[0]) - sum(totals):5.2f} {totals[0]:5.2f} {totals[1]:5.2f} "
+          f"{totals[2]:5.2f}")
     cpu = time.process_time()
     page = _page(written, directory, figures, interval_minutes(written.timeseries.index))
     print(f"page: {time.process_time() - cpu:.2f} s CPU, report.html "
           f"{len(page.encode('utf-8')) / 1e6:.2f} MB")
+
+
+@contextlib.contextmanager
+def _timed_parts(split: list):
+    """Append (tick pass, canvas drawing, PNG encoding) CPU seconds per figure to `split`."""
+    from fluxpart.figures import Drawing
+
+    def timed(function):
+        def run(*args, **kwargs):
+            start = time.process_time()
+            try:
+                return function(*args, **kwargs)
+            finally:
+                spent[function.__name__] += time.process_time() - start
+        return run
+
+    spent = {}
+    light_ticks, encode, png = Drawing.light_ticks, Drawing.encode, Drawing.png
+
+    def figure_png(self, figure):
+        spent.update(light_ticks=0.0, encode=0.0, png=0.0)
+        data = timed(png)(self, figure)
+        split.append((spent["light_ticks"], spent["png"] - spent["light_ticks"]
+                      - spent["encode"], spent["encode"]))
+        return data
+
+    Drawing.light_ticks, Drawing.encode = timed(light_ticks), staticmethod(timed(encode))
+    Drawing.png = figure_png
+    try:
+        yield
+    finally:
+        Drawing.light_ticks, Drawing.encode, Drawing.png = light_ticks, staticmethod(encode), png
 
 
 def main() -> None:
