@@ -525,13 +525,17 @@ def _methods(config: dict, has_random: bool) -> tuple[str, list[str]]:
         "Gap filling of NEE and the drivers by marginal distribution sampling (Reichstein et "
         "al. 2005, appendix): similar Rg, Tair and VPD within widening time windows, then the "
         "mean diurnal course; fill quality classes A, B, C.",
-        "Nighttime partitioning: Lloyd–Taylor respiration (Lloyd & Taylor 1994) with E0 from "
-        f"short {_setting_value(config.get('e0_window_days'))}-day windows of night data and "
-        f"Rref in {_setting_value(config.get('rref_window_days'))}-day windows (Reichstein et "
-        "al. 2005); GPP = Reco − NEE.",
+        "Nighttime partitioning: Lloyd–Taylor respiration (Lloyd & Taylor 1994); E0 per year "
+        f"from the night data with a free Rref in each {_setting_value(config.get('e0_window_days'))}"
+        f"-day window (e0_method = {_setting_value(config.get('e0_method'))}), Rref in "
+        f"{_setting_value(config.get('rref_window_days'))}-day windows (Reichstein et al. "
+        "2005); GPP = Reco − NEE.",
         "Daytime partitioning: rectangular light response with VPD limitation of the "
         f"saturated assimilation, fitted in {_setting_value(config.get('daytime_window_days'))}"
-        "-day windows with E0 from the nighttime method (Lasslop et al. 2010).",
+        "-day windows (Lasslop et al. 2010), with its own E0: each window's estimate from the "
+        "night data around it, pooled over the year by inverse variance (the daytime "
+        "parameter table); a window whose fit sits at a bound, contradicts its night data or "
+        "does not resolve respiration is refitted with Rref from its night data.",
         "Uncertainty: the annual sums are recomputed with the u* threshold at bootstrap "
         f"percentiles {_setting_value(config.get('ustar_scenarios'))}; the two partitioning "
         "methods are compared against the agreement margin "
