@@ -96,9 +96,12 @@ def _to_arrow(frame: pd.DataFrame, units: dict[str, tuple[str, str]], name: str,
     # the frame's attrs go into the file metadata below; left on the copy, pandas would
     # deep-copy them for every column Arrow takes out of it
     flat.attrs = {}
-    table = pa.Table.from_pandas(flat, preserve_index=False)
+    # column by column, as pa.Table.from_pandas converts them (the same Arrow types and
+    # values), without its pandas metadata, which the schema below drops, and its threads
+    arrays = [pa.array(values, from_pandas=True) for _, values in flat.items()]
     fields, columns = [], {}
-    for field in table.schema:
+    for label, array in zip(flat.columns, arrays, strict=True):
+        field = pa.field(str(label), array.type)
         unit, description = units.get(field.name, ("", ""))
         columns[field.name] = {"unit": unit, "description": description}
         fields.append(field.with_metadata({b"unit": unit.encode(), b"description":
@@ -108,7 +111,7 @@ def _to_arrow(frame: pd.DataFrame, units: dict[str, tuple[str, str]], name: str,
             "columns": columns}
     text = json.dumps(meta, sort_keys=True, ensure_ascii=False, allow_nan=False)
     schema = pa.schema(fields, metadata={_SCHEMA_KEY: text.encode("utf-8")})
-    return pa.Table.from_arrays(table.columns, schema=schema)
+    return pa.Table.from_arrays(arrays, schema=schema)
 
 
 def write_table(frame: pd.DataFrame, path, units: dict[str, tuple[str, str]], name: str, *,
