@@ -1309,10 +1309,14 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                             "more) read as missing, first on data line "
                             f"{int(lines[np.flatnonzero(absurd)[0]])} of its file")
 
-    # exact duplicate rows: same stamp and same value in every column read
-    table = pd.DataFrame(values)
-    table.insert(0, "__stamp__", parsed.stamps)
-    duplicate = table.duplicated(keep="first").to_numpy()
+    # exact duplicate rows: same stamp and same value in every column read (none where
+    # no stamp repeats, the usual file, which a hash of the stamps alone tells)
+    if parsed.stamps.is_unique:
+        duplicate = np.zeros(len(parsed.stamps), dtype=bool)
+    else:
+        table = pd.DataFrame(values)
+        table.insert(0, "__stamp__", parsed.stamps)
+        duplicate = table.duplicated(keep="first").to_numpy()
     keep = ~duplicate
     stamps = parsed.stamps[keep]
     check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
