@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import datetime
+import gc
 import sys
 import warnings
 from pathlib import Path
@@ -18,6 +19,14 @@ from .errors import ConfigError, FluxpartError, FluxpartWarning
 from .manifest import CAUTION
 
 __all__ = ["main"]
+
+#: Garbage-collector thresholds (generations 0, 1, 2) while a command runs. A command's
+#: work is NumPy arrays and pandas frames, which form no reference cycles, but with
+#: Python's default (700, 10, 10) the collector ran ~200 times in one `run` of a
+#: site-year, scanning the objects the imports of pandas and pyarrow leave behind
+#: (0.09-0.12 s CPU); at these thresholds it runs a few times (0.03 s), with the same
+#: peak memory (207 MB). The previous thresholds are restored afterwards.
+_GC_THRESHOLDS = (50_000, 20, 20)
 
 
 def _format_annual(annual) -> str:
@@ -368,6 +377,8 @@ def _lazy(module: str, function: str):
 def main(argv=None) -> int:
     """Run the command line; return the exit status."""
     args = _parser().parse_args(argv)
+    thresholds = gc.get_threshold()
+    gc.set_threshold(*_GC_THRESHOLDS)
     try:
         with warnings.catch_warnings():
             # the commands print a result's warnings themselves, once, in their output
@@ -385,3 +396,5 @@ def main(argv=None) -> int:
     except BrokenPipeError:          # output piped into e.g. `head`, which closed early
         sys.stderr.close()
         return 0
+    finally:
+        gc.set_threshold(*thresholds)

@@ -1179,8 +1179,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                               "is empty" if not text else "holds only blank lines") from None
     except pd.errors.ParserError as error:
         raise InputFileError(_parser_message(path, delimiter, str(error))) from None
-    blank = (raw.apply(lambda column: column.str.strip()) == "").all(axis=1).to_numpy() \
-        if raw.shape[1] else np.ones(len(raw), dtype=bool)
+    blank = _blank_rows(raw)
     lines = np.arange(len(raw)) + rows_before_header + rows_after_header + 2
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
@@ -1193,6 +1192,21 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
     return raw, lines, [str(h).strip() for h in header]
+
+
+def _blank_rows(raw: pd.DataFrame) -> np.ndarray:
+    """Rows whose every cell is empty or whitespace.
+
+    Column by column, each looking only at the rows still blank in the columns before
+    (in a file of records the first column already settles almost every row).
+    """
+    blank = np.ones(len(raw), dtype=bool)
+    for _, column in raw.items():
+        rows = np.flatnonzero(blank)
+        if rows.size == 0:
+            break
+        blank[rows] = (column.iloc[rows].str.strip() == "").to_numpy(dtype=bool)
+    return blank
 
 
 def _parser_message(path: Path, delimiter: str, error: str) -> str:
@@ -1295,10 +1309,14 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                             "more) read as missing, first on data line "
                             f"{int(lines[np.flatnonzero(absurd)[0]])} of its file")
 
-    # exact duplicate rows: same stamp and same value in every column read
-    table = pd.DataFrame(values)
-    table.insert(0, "__stamp__", parsed.stamps)
-    duplicate = table.duplicated(keep="first").to_numpy()
+    # exact duplicate rows: same stamp and same value in every column read (none where
+    # no stamp repeats, the usual file, which a hash of the stamps alone tells)
+    if parsed.stamps.is_unique:
+        duplicate = np.zeros(len(parsed.stamps), dtype=bool)
+    else:
+        table = pd.DataFrame(values)
+        table.insert(0, "__stamp__", parsed.stamps)
+        duplicate = table.duplicated(keep="first").to_numpy()
     keep = ~duplicate
     stamps = parsed.stamps[keep]
     check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],

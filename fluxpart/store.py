@@ -87,18 +87,21 @@ def _stored_index(frame: pd.DataFrame) -> str | None:
 def _to_arrow(frame: pd.DataFrame, units: dict[str, tuple[str, str]], name: str,
               metadata: dict | None) -> pa.Table:
     index_name = _stored_index(frame)
-    if index_name is None:
-        flat = frame.reset_index(drop=True)
-    elif index_name in frame.columns:
-        flat = frame.reset_index(drop=True)
-    else:
-        flat = frame.reset_index(names=index_name)
-    # the frame's attrs go into the file metadata below; left on the copy, pandas would
-    # deep-copy them for every column Arrow takes out of it
-    flat.attrs = {}
-    table = pa.Table.from_pandas(flat, preserve_index=False)
+    # a shallow copy without the attrs (they go into the file metadata below; left on,
+    # pandas would deep-copy them for every column taken out of the frame)
+    plain = frame.copy(deep=False)
+    plain.attrs = {}
+    # column by column, as pa.Table.from_pandas converts them (the same Arrow types and
+    # values), without its pandas metadata, which the schema below drops, and its threads;
+    # the index first where it is stored (as reset_index would make it a column)
+    labels = [str(label) for label in plain.columns]
+    arrays = [pa.array(values, from_pandas=True) for _, values in plain.items()]
+    if index_name is not None and index_name not in plain.columns:
+        labels.insert(0, index_name)
+        arrays.insert(0, pa.array(plain.index.to_series(), from_pandas=True))
     fields, columns = [], {}
-    for field in table.schema:
+    for label, array in zip(labels, arrays, strict=True):
+        field = pa.field(label, array.type)
         unit, description = units.get(field.name, ("", ""))
         columns[field.name] = {"unit": unit, "description": description}
         fields.append(field.with_metadata({b"unit": unit.encode(), b"description":
@@ -108,7 +111,7 @@ def _to_arrow(frame: pd.DataFrame, units: dict[str, tuple[str, str]], name: str,
             "columns": columns}
     text = json.dumps(meta, sort_keys=True, ensure_ascii=False, allow_nan=False)
     schema = pa.schema(fields, metadata={_SCHEMA_KEY: text.encode("utf-8")})
-    return pa.Table.from_arrays(table.columns, schema=schema)
+    return pa.Table.from_arrays(arrays, schema=schema)
 
 
 def write_table(frame: pd.DataFrame, path, units: dict[str, tuple[str, str]], name: str, *,

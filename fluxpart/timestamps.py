@@ -105,6 +105,10 @@ def _time_setting(time_columns: tuple) -> str:
 
 
 def _to_datetime(text: pd.Series, time_format: str, utc: bool) -> pd.Series:
+    if not utc:
+        fixed = _fixed_width_stamps(text, time_format)
+        if fixed is not None:
+            return fixed
     try:
         return pd.to_datetime(text, format=time_format, errors="coerce", utc=utc)
     except (ValueError, TypeError) as error:
@@ -114,6 +118,101 @@ def _to_datetime(text: pd.Series, time_format: str, utc: bool) -> pd.Series:
                     "as dates and times in a copy of the file and set time_format to match")
         raise TimestampError(f"[input] time_format = {setting_text(time_format)} cannot be used: "
                              f"{' '.join(str(error).split())}{hint}") from None
+
+
+#: strptime codes read by :func:`_fixed_width_stamps`: digits and the accepted range
+_FIXED_FIELDS = {"Y": (4, 1, 9999), "m": (2, 1, 12), "d": (2, 1, 31), "H": (2, 0, 23),
+                 "M": (2, 0, 59), "S": (2, 0, 59)}
+
+
+def _fixed_width_layout(time_format: str):
+    """Byte offsets of the fields and literal characters of a fixed-width numeric format.
+
+    Returns ``(fields, literals, width)`` for a format made only of ``%Y %m %d %H %M``
+    (each once), optionally ``%S``, and printable ASCII literals (``"%Y%m%d%H%M"``,
+    ``"%Y-%m-%d %H:%M:%S"``, ``"%d.%m.%Y %H:%M"``), else None.
+    """
+    fields, literals, position, i = {}, [], 0, 0
+    while i < len(time_format):
+        character = time_format[i]
+        if character == "%":
+            code = time_format[i + 1:i + 2]
+            if code not in _FIXED_FIELDS or code in fields:
+                return None
+            fields[code] = position
+            position += _FIXED_FIELDS[code][0]
+            i += 2
+            continue
+        if not (character.isascii() and character.isprintable()):
+            return None
+        literals.append((position, ord(character)))
+        position += 1
+        i += 1
+    if not {"Y", "m", "d", "H", "M"} <= fields.keys():
+        return None
+    return fields, literals, position
+
+
+def _fixed_width_stamps(text: pd.Series, time_format: str) -> pd.Series | None:
+    """Stamps of a fixed-width numeric format read by array arithmetic, or None.
+
+    The fast path of :func:`_to_datetime` (strptime on 17,520 stamps takes ~0.1 s):
+    taken only where every stamp has exactly the format's width, its literal
+    characters in place, ASCII digits in every field, and every field in range
+    (the day within its month). Such a stamp has one reading, the one strptime
+    gives (its field patterns try two digits first), so the values are those of
+    :func:`pandas.to_datetime`; any other column returns None and takes that path,
+    with its messages, hour 24 and padding rules.
+    """
+    layout = _fixed_width_layout(time_format)
+    if layout is None or len(text) == 0:
+        return None
+    fields, literals, width = layout
+    import pyarrow as pa
+
+    try:
+        cells = pa.array(text, from_pandas=True)
+    except (pa.ArrowInvalid, pa.ArrowTypeError):
+        return None
+    if isinstance(cells, pa.ChunkedArray):
+        cells = cells.combine_chunks()
+    if cells.null_count or not (pa.types.is_string(cells.type)
+                                or pa.types.is_large_string(cells.type)):
+        return None
+    cells = cells.cast(pa.large_binary())
+    offsets = np.frombuffer(cells.buffers()[1], dtype=np.int64)[
+        cells.offset:cells.offset + len(cells) + 1]
+    if not (np.diff(offsets) == width).all():
+        return None
+    data = np.frombuffer(cells.buffers()[2], dtype=np.uint8)[offsets[0]:offsets[-1]]
+    data = data.reshape(len(cells), width)
+    for position, code in literals:
+        if not (data[:, position] == code).all():
+            return None
+    values = {}
+    for code, start in fields.items():
+        digits = data[:, start:start + _FIXED_FIELDS[code][0]].astype(np.int64) - ord("0")
+        if ((digits < 0) | (digits > 9)).any():
+            return None
+        number = np.zeros(len(data), dtype=np.int64)
+        for column in digits.T:
+            number = number * 10 + column
+        low, high = _FIXED_FIELDS[code][1:]
+        if ((number < low) | (number > high)).any():
+            return None
+        values[code] = number
+    month = (values["Y"] - 1970) * 12 + values["m"] - 1
+    first_day = month.astype("datetime64[M]").astype("datetime64[D]")
+    next_first = (month + 1).astype("datetime64[M]").astype("datetime64[D]")
+    if (values["d"] > (next_first - first_day).astype(np.int64)).any():
+        return None
+    seconds = values["H"] * 3600 + values["M"] * 60 + values.get("S", 0)
+    stamps = (first_day + (values["d"] - 1)).astype("datetime64[s]") + seconds
+    # the unit pandas gives parsed text (microseconds in pandas 3), from its own first stamp
+    probe = pd.to_datetime(text.iloc[:1], format=time_format, errors="coerce")
+    if probe.isna().any() or probe.iloc[0] != stamps[0]:
+        return None
+    return pd.Series(stamps.astype(probe.dtype), index=text.index, name=text.name)
 
 
 _CLOCK_FIELD = re.compile(r"%H%M(%S)?")

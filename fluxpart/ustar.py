@@ -828,7 +828,7 @@ def _class_positions(values, group, n_groups, classes, ranks=None):
     """
     if ranks is not None:
         width = int(ranks.max()) + 1 if ranks.size else 1
-        order = np.argsort(group.astype(np.int64) * width + ranks, kind="stable")
+        order = _stable_order(group.astype(np.int64) * width + ranks)
     else:
         order = np.argsort(values, kind="stable")
         narrow = np.min_scalar_type(max(n_groups - 1, 0))
@@ -840,6 +840,22 @@ def _class_positions(values, group, n_groups, classes, ranks=None):
     out = np.empty(len(values), dtype=np.int64)
     out[order] = (rank * classes) // np.maximum(size[sorted_group], 1)
     return out
+
+
+def _stable_order(key) -> np.ndarray:
+    """``np.argsort(key, kind="stable")`` of non-negative integers.
+
+    Below 2**32 by two stable passes over 16-bit halves, low then high (a
+    least-significant-digit radix sort; NumPy sorts 16-bit integers by radix sort
+    where a 64-bit key takes a comparison sort): the same permutation.
+    """
+    if key.size == 0 or key.max() >= 2**32:
+        return np.argsort(key, kind="stable")
+    low = np.argsort((key & 0xFFFF).astype(np.uint16), kind="stable")
+    if key.max() < 2**16:
+        return low
+    high = np.argsort((key[low] >> 16).astype(np.uint16), kind="stable")
+    return low[high]
 
 
 def _cell_means(values, cell, n_cells):
@@ -1190,7 +1206,13 @@ def _estimate_tables(data: _NightData, core, options, detector) -> ThresholdEsti
 def _annual(groups, core, detector, floor) -> pd.DataFrame:
     """Annual thresholds: median of the year's strata, or (moving point, ``annual =
     "maximum"``) the maximum of its seasons."""
-    years = groups["year"].to_numpy()
+    columns = _annual_columns(groups["year"].to_numpy(), groups["season"].to_numpy(), core,
+                              detector, floor)
+    return pd.DataFrame({**columns, "reason": pd.array(columns["reason"], dtype="str")})
+
+
+def _annual_columns(years, season_names, core, detector, floor) -> dict:
+    """The columns of :func:`_annual` as arrays, from the groups' years and season names."""
     unique_years, year_of_group = np.unique(years, return_inverse=True)
     n_years = len(unique_years)
     seasonal = core["seasonal"]
@@ -1217,7 +1239,6 @@ def _annual(groups, core, detector, floor) -> pd.DataFrame:
         detected = np.where((accepted > 0) & (accepted >= core["min_significant_share"] * tested),
                             detected, np.nan)
     reason = np.full(n_years, "", dtype=object)
-    season_names = groups["season"].to_numpy()
     for y in range(n_years):
         if records[y] == 0:
             reason[y] = "no usable night records (night, with NEE, u* and temperature)"
@@ -1230,10 +1251,9 @@ def _annual(groups, core, detector, floor) -> pd.DataFrame:
             found = set(season_names[(year_of_group == y) & has])
             absent = [season for season in SEASONS if season not in found]
             reason[y] = f"from {seasons_used[y]} of 4 seasons (none in: {', '.join(absent)})"
-    return pd.DataFrame({"year": unique_years.astype(np.int64), "night_records": records,
-                         "seasons_used": seasons_used, "threshold_detected": detected,
-                         "threshold": _floored(detected, floor),
-                         "reason": pd.array(reason, dtype="str")})
+    return {"year": unique_years.astype(np.int64), "night_records": records,
+            "seasons_used": seasons_used, "threshold_detected": detected,
+            "threshold": _floored(detected, floor), "reason": reason}
 
 
 def _bootstrap(data: _NightData, detector, options, draws, seed) -> pd.DataFrame:
@@ -1246,16 +1266,19 @@ def _bootstrap(data: _NightData, detector, options, draws, seed) -> pd.DataFrame
     # ranks of the original records, once: a draw's records sort by these integers
     data_ranks = {"tair": _dense_ranks(data.tair), "ustar": _dense_ranks(data.ustar)}
     rows = []
+    repeated = {}          # the groups repeated for a chunk of draws, by chunk size
+    years, seasons = groups["year"].to_numpy(), groups["season"].to_numpy(dtype=object)
     for first in range(0, draws, _DRAWS_PER_CHUNK):
         chunk = min(_DRAWS_PER_CHUNK, draws - first)
+        if chunk not in repeated:
+            repeated[chunk] = pd.concat([groups] * chunk, ignore_index=True)
         uniform = rng.random((chunk, n))
         picked = start[data.group] + np.minimum((uniform * size[data.group]).astype(np.int64),
                                                 size[data.group] - 1)
         picked = picked.ravel()
         group = (np.arange(chunk)[:, None] * n_groups + data.group[None, :]).ravel()
         resampled = _NightData(nee=data.nee[picked], ustar=data.ustar[picked],
-                               tair=data.tair[picked], group=group,
-                               groups=pd.concat([groups] * chunk, ignore_index=True))
+                               tair=data.tair[picked], group=group, groups=repeated[chunk])
         ranks = {name: values[picked] for name, values in data_ranks.items()}
         if detector == "moving_point":
             core = _moving_point_core(resampled.nee, resampled.ustar, resampled.tair, group,
@@ -1265,20 +1288,18 @@ def _bootstrap(data: _NightData, detector, options, draws, seed) -> pd.DataFrame
                                       resampled.groups, options, statistics=False, ranks=ranks)
         floor = options["min_threshold"]
         draw = first + np.repeat(np.arange(chunk), n_groups)
-        rows.append((draw, np.tile(groups["year"].to_numpy(), chunk),
-                     np.tile(groups["season"].to_numpy(dtype=object), chunk),
+        rows.append((draw, np.tile(years, chunk), np.tile(seasons, chunk),
                      _floored(core["seasonal"], floor)))
         # the annual values of every draw of the chunk in one call: each (draw, year)
         # is a year of its own, numbered draw offset x stride + year
-        pseudo = resampled.groups.assign(
-            year=np.repeat(np.arange(chunk), n_groups) * _YEAR_STRIDE
-            + np.tile(groups["year"].to_numpy(), chunk))
-        annual = _annual(pseudo, {key: value for key, value in core.items() if key != "strata"},
-                         detector, floor)
-        pseudo_year = annual["year"].to_numpy()
+        annual = _annual_columns(np.repeat(np.arange(chunk), n_groups) * _YEAR_STRIDE
+                                 + np.tile(years, chunk), np.tile(seasons, chunk),
+                                 {key: value for key, value in core.items() if key != "strata"},
+                                 detector, floor)
+        pseudo_year = annual["year"]
         rows.append((first + pseudo_year // _YEAR_STRIDE, pseudo_year % _YEAR_STRIDE,
-                     np.full(len(annual), "year", dtype=object),
-                     annual["threshold"].to_numpy(dtype=float)))
+                     np.full(len(pseudo_year), "year", dtype=object),
+                     np.asarray(annual["threshold"], dtype=float)))
     if not rows:
         return pd.DataFrame({"draw": pd.Series(dtype=np.int64), "year": pd.Series(dtype=np.int64),
                              "period": pd.Series(dtype="str"),

@@ -128,3 +128,23 @@ def test_out_that_cannot_be_written_fails_before_computing(example, tmp_path, ca
     assert captured.err.startswith("error: --out") and "Traceback" not in captured.err
     assert captured.out == ""
     assert blocker.read_text() == "not a folder"
+
+
+def test_collector_thresholds_raised_during_a_command_and_restored(example, monkeypatch):
+    """Issue 17: a command runs with the raised garbage-collector thresholds, and main
+    leaves the interpreter's own thresholds as it found them, also after an error."""
+    import gc
+
+    from fluxpart import cli
+
+    seen = []
+
+    def stop(out):
+        seen.append(gc.get_threshold())
+        raise cli.FluxpartError("stopped by the test")
+
+    monkeypatch.setattr(cli, "_check_output_folder", stop)
+    before = gc.get_threshold()
+    assert main(["run", str(example), "--quiet"]) == 2
+    assert seen == [cli._GC_THRESHOLDS] and cli._GC_THRESHOLDS != before
+    assert gc.get_threshold() == before

@@ -718,3 +718,23 @@ def test_curvature_setting_is_checked():
     for bad in (1.0, -0.1, "bent", float("nan")):
         with pytest.raises(ConfigError, match="curvature"):
             partition_daytime(**_inputs(record), curvature=bad)
+
+
+def test_vpd_reduction_is_the_plain_exponential_bit_for_bit():
+    """Issue 17: the VPD limitation taken only above VPD0 and where k > 0 equals
+    numpy.exp(-k (VPD - VPD0)) over the whole packed array bit for bit (exp(±0) = 1
+    exactly in IEEE 754 arithmetic), also after rows leave the arrays and with k = inf."""
+    from fluxpart.partition import daytime
+
+    windows, mask, theta = _random_packed_problem(11, 8, 60)
+    data = daytime._packed_fit_data(windows, mask, np.arange(8), 10.0)
+    assert 0 < np.count_nonzero(data["excess"]) < data["excess"].size
+    k = theta[:, 2].copy()
+    k[[1, 4]] = 0.0
+    for values, packed in ((k, data), (k[::2], daytime._take_rows(data, np.arange(8) % 2 == 0))):
+        plain = np.exp(-values[:, None] * packed["excess"])
+        assert np.array_equal(daytime._vpd_reduction(values, packed), plain)
+    k[2] = np.inf
+    with np.errstate(invalid="ignore"):
+        plain = np.exp(-k[:, None] * data["excess"])
+        assert np.array_equal(daytime._vpd_reduction(k, data), plain, equal_nan=True)

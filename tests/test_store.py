@@ -152,3 +152,24 @@ def test_every_file_of_a_result_names_the_site(written_demo):
         assert info["site"]["name"] == result.site.name, path.name
         assert info["interval_minutes"] == 30, path.name
         assert info["columns"], path.name
+
+
+def test_columns_take_the_arrow_types_and_values_of_from_pandas():
+    """Issue 17: the column-by-column conversion gives the Arrow types and values that
+    pyarrow's own pa.Table.from_pandas gives (pyarrow 26, the reference converter), for
+    floats with NaN, integers, booleans, text, labels, stamps and nullable integers."""
+    import pyarrow as pa
+
+    from fluxpart.store import _to_arrow
+
+    frame = _frame().assign(
+        count=np.arange(4, dtype=np.int64), flag=[True, False, True, True],
+        reason=pd.array(["ok", "", "ok", "gap"], dtype="str"),
+        when=pd.date_range("2024-02-01", periods=4, freq="D"),
+        optional=pd.array([1, None, 3, 4], dtype="Int64"))
+    converted = _to_arrow(frame, _UNITS, "timeseries", None)
+    reference = pa.Table.from_pandas(frame.reset_index(), preserve_index=False)
+    assert converted.schema.names == reference.schema.names
+    assert [f.type for f in converted.schema] == [f.type for f in reference.schema]
+    assert converted.replace_schema_metadata(None).cast(
+        reference.schema.remove_metadata()).equals(reference.replace_schema_metadata(None))

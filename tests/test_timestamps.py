@@ -86,3 +86,40 @@ def test_mixed_naive_and_offset_stamps_refused():
                                         r"a UTC offset"):
         parse_stamps(text, "ISO8601", time_columns=("t",), source="f", lines=np.arange(3) + 2,
                      utc_offset=0.0)
+
+
+@pytest.mark.parametrize("time_format", ["%Y%m%d%H%M", "%Y-%m-%d %H:%M:%S", "%d.%m.%Y %H:%M",
+                                         "%m/%d/%Y %H:%M", "%Y-%m-%dT%H:%M"])
+def test_fixed_width_stamps_equal_pandas_to_datetime(time_format):
+    """Issue 17: stamps of fixed-width numeric formats read by array arithmetic equal
+    pandas.to_datetime(format=...) (the general path; pandas 3.1) value and unit for value
+    and unit, leap day included; a stamp off the layout (a letter, one digit short, the
+    29th of February of a common year, hour 24) leaves the column to pandas."""
+    from fluxpart.timestamps import _fixed_width_stamps, _to_datetime
+
+    moments = pd.date_range("2019-12-31 22:00", "2020-03-01 02:00", freq="30min")
+    text = pd.Series(moments.strftime(time_format), dtype="str", name="stamp")
+    fast = _fixed_width_stamps(text, time_format)
+    assert fast is not None
+    pd.testing.assert_series_equal(fast, pd.to_datetime(text, format=time_format),
+                                   check_exact=True)
+    common_year_29 = pd.Timestamp("2021-02-28 10:30").strftime(time_format).replace("28", "29", 1)
+    for bad in ("x" + text.iloc[3][1:], text.iloc[3][:-1], common_year_29):
+        odd = text.copy()
+        odd.iloc[3] = bad
+        assert _fixed_width_stamps(odd, time_format) is None
+        pd.testing.assert_series_equal(_to_datetime(odd, time_format, False),
+                                       pd.to_datetime(odd, format=time_format, errors="coerce"),
+                                       check_exact=True)
+
+
+def test_hour_24_still_read_with_fixed_width_formats():
+    """Issue 17: a compact stamp with hour 24 leaves the fast path; parse_stamps still reads
+    it as midnight of the next day (the convention of the module docstring)."""
+    text = pd.Series(["202106012330", "202106012400", "202106020030"], dtype="str")
+    parsed = parse_stamps(text, "%Y%m%d%H%M", time_columns=("stamp",), source="f.csv",
+                          lines=np.arange(3) + 2)
+    assert list(parsed.stamps) == [pd.Timestamp("2021-06-01 23:30"),
+                                   pd.Timestamp("2021-06-02 00:00"),
+                                   pd.Timestamp("2021-06-02 00:30")]
+    assert parsed.hour_24 == 1

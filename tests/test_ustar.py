@@ -347,6 +347,17 @@ def test_class_positions_follow_the_lexsort_order_with_and_without_ranks():
     np.testing.assert_array_equal(ranked, expected)
 
 
+@pytest.mark.parametrize("largest", [2**10, 2**16 + 5, 2**31, 2**40])
+def test_stable_order_is_numpy_stable_argsort(largest):
+    """Issue 17: the two-pass 16-bit radix order of the bootstrap's integer keys is the
+    permutation of ``numpy.argsort(kind="stable")`` (NumPy 2.4, the reference; ties in
+    record order), for keys below 2**16, below 2**32 and beyond (the plain sort)."""
+    rng = np.random.default_rng(7)
+    key = rng.integers(0, largest, 5000)
+    key[::7] = key[3]                                       # many ties
+    np.testing.assert_array_equal(ustar._stable_order(key), np.argsort(key, kind="stable"))
+
+
 def test_resolution_is_plateau_flux_over_the_standard_error_of_a_class_mean():
     """``resolution`` = mean NEE of the upper half of u* classes / (sd / sqrt(records per class)).
 

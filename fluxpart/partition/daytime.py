@@ -1040,8 +1040,6 @@ def _levenberg_marquardt(theta, fixed, lower, upper, windows, mask, vpd0, max_it
         finished = live & (negligible | small_change | small_step | (damping > _LAMBDA_MAX))
         current = np.where(better[:, None], trial, current)
         cost = np.where(better, trial_cost, cost)
-        theta[active[live]] = current[live]
-        converged[active[finished]] = True
         live &= ~finished
         if not live.any():
             break
@@ -1052,11 +1050,17 @@ def _levenberg_marquardt(theta, fixed, lower, upper, windows, mask, vpd0, max_it
             gradient = np.where(better[:, None], new_gradient, gradient)
             normal = np.where(better[:, None, None], new_normal, normal)
         if live.sum() < 0.75 * len(live):
-            # converged windows leave the arrays once a quarter of them has finished
+            # converged windows leave the arrays once a quarter of them has finished;
+            # a window's parameters change only while it is live, so they are written
+            # back as it leaves (and at the end)
+            theta[active[~live]] = current[~live]
+            converged[active[~live]] = True
             active, current, held, cost, damping = (active[live], current[live], held[live],
                                                     cost[live], damping[live])
             gradient, normal, data = gradient[live], normal[live], _take_rows(data, live)
             live = live[live]
+    theta[active] = current
+    converged[active[~live]] = True
     return theta, converged
 
 
@@ -1073,26 +1077,66 @@ def _packed_fit_data(windows, mask, rows, vpd0) -> dict:
     row, column = np.nonzero(mask)                  # row by row, in time order
     slot = np.arange(len(row)) - (np.cumsum(points) - points)[row]
     picked = np.zeros((len(rows), width), dtype=bool)
-    picked[row, slot] = True
-    source_row = rows[row]
+    target = row * width + slot                     # flat positions: one take, one put
+    picked.ravel()[target] = True
+    source = rows[row] * mask.shape[1] + column
 
     def pack(values):
         packed = np.zeros((len(rows), width))
-        packed[row, slot] = values[source_row, column]
+        packed.ravel()[target] = values.ravel()[source]
         return packed
 
     light = np.clip(pack(windows["rg"]), 0.0, None)
     vpd_excess = pack(windows["vpd"]) - vpd0
     factor = pack(windows["factor"])
     weight = pack(windows["weight"])
-    return {"light": light, "excess": np.where(vpd_excess > 0.0, vpd_excess, 0.0),
-            "factor": factor, "nee": pack(windows["nee"]), "weight": weight,
-            "factor_weight": factor * weight, "points": points, "inside": picked,
-            "curvature": windows["curvature"][rows][:, None]}
+    return _with_derived({
+        "light": light, "excess": np.where(vpd_excess > 0.0, vpd_excess, 0.0),
+        "factor": factor, "nee": pack(windows["nee"]), "weight": weight,
+        "factor_weight": factor * weight, "points": points, "inside": picked,
+        "curvature": windows["curvature"][rows][:, None]})
+
+
+_DERIVED = ("excess_flat", "excess_row", "excess_values", "jacobian")
+
+
+def _with_derived(data: dict) -> dict:
+    """`data` with what the iteration reuses: the records above VPD0 and a Jacobian buffer.
+
+    ``excess_flat``, ``excess_row``, ``excess_values``: the flat positions of the records
+    above VPD0, their rows and excesses; only there does the VPD limitation differ from 1
+    (see :func:`_vpd_reduction`), a few per cent of the packed array in a year's daytime
+    records. ``jacobian``: (windows x 4 x width), its Rref column (the constant
+    ``factor_weight``) filled, the others written by :func:`_normal_equations`.
+    """
+    excess = data["excess"]
+    flat = np.flatnonzero(excess)
+    jacobian = np.empty((excess.shape[0], 4, excess.shape[1]))
+    jacobian[:, _RREF] = data["factor_weight"]
+    return {**data, "excess_flat": flat, "excess_row": flat // excess.shape[1],
+            "excess_values": excess.ravel()[flat], "jacobian": jacobian}
 
 
 def _take_rows(arrays: dict, rows) -> dict:
-    return {name: values[rows] for name, values in arrays.items()}
+    return _with_derived({name: values[rows] for name, values in arrays.items()
+                          if name not in _DERIVED})
+
+
+def _vpd_reduction(k, data):
+    """The VPD limitation ``exp(-k (VPD - VPD0))`` of the packed records (windows x width).
+
+    Equal bit for bit to ``np.exp(-k[:, None] * data["excess"])``: where the excess or k
+    is 0 the exponent is ±0 and its exponential exactly 1, so the exponential is taken
+    only at the records above VPD0 of windows with k > 0.
+    """
+    if not np.isfinite(k).all():
+        return np.exp(-k[:, None] * data["excess"])       # inf * 0 is NaN there
+    reduction = np.ones(data["excess"].shape)
+    rows = data["excess_row"]
+    moving = k[rows] != 0.0
+    reduction.ravel()[data["excess_flat"][moving]] = np.exp(
+        -k[rows[moving]] * data["excess_values"][moving])
+    return reduction
 
 
 def _cost(theta, data):
@@ -1102,11 +1146,11 @@ def _cost(theta, data):
     (:func:`fluxpart.responses.light_response`), on the packed arrays of
     :func:`_packed_fit_data`.
     """
-    alpha, beta0, k, rref = (theta[:, column, None] for column in range(4))
+    alpha, beta0, rref = theta[:, _ALPHA, None], theta[:, _BETA0, None], theta[:, _RREF, None]
     curvature = data["curvature"]
     parts = {}
     with np.errstate(over="ignore", invalid="ignore"):
-        reduction = np.exp(-k * data["excess"])
+        reduction = _vpd_reduction(theta[:, _K], data)
         beta = beta0 * reduction
         assimilation = alpha * data["light"]
         total = assimilation + beta
@@ -1148,10 +1192,12 @@ def _normal_equations(data, parts):
             inverse_square = parts["inverse"] * parts["inverse"]
             d_alpha = -np.square(beta) * data["light"] * inverse_square * weight
             d_beta = np.square(parts["assimilation"]) * inverse_square * weight
-        jacobian = np.stack([d_alpha,
-                             -d_beta * parts["reduction"],
-                             d_beta * beta * data["excess"],
-                             data["factor_weight"]], axis=1)
+        # into the packed data's buffer (its Rref column is the constant factor x weight):
+        # the same array np.stack would build
+        jacobian = data["jacobian"]
+        jacobian[:, _ALPHA] = d_alpha
+        np.multiply(-d_beta, parts["reduction"], out=jacobian[:, _BETA0])
+        np.multiply(d_beta * beta, data["excess"], out=jacobian[:, _K])
         gradient = (jacobian @ parts["residual"][:, :, None])[:, :, 0]
         normal = jacobian @ jacobian.transpose(0, 2, 1)
     return gradient, normal
@@ -1173,11 +1219,9 @@ def _marquardt_step(theta, fixed, lower, upper, gradient, normal, cost, points, 
     # parameters get a unit row and column, the others diag(J^T J) times the damping
     systems = np.empty((2, count, 4, 4))
     systems[:] = np.where(keep[:, :, None] & keep[:, None, :], normal, 0.0)
-    slots = np.arange(4)
-    systems[0, :, slots, slots] = np.where(keep, normal[:, slots, slots] + 1e-12 * diagonal,
-                                           1.0).T
-    systems[1, :, slots, slots] = np.where(keep, normal[:, slots, slots]
-                                           + damping[:, None] * diagonal, 1.0).T
+    on_diagonal = systems.reshape(2, count, 16)[:, :, ::5]       # a view of the diagonals
+    on_diagonal[0] = np.where(keep, diagonal + 1e-12 * diagonal, 1.0)
+    on_diagonal[1] = np.where(keep, diagonal + damping[:, None] * diagonal, 1.0)
     steps = np.linalg.solve(systems.reshape(2 * count, 4, 4),
                             np.concatenate([descent, descent])[:, :, None])[:, :, 0]
     newton_step, step = steps[:count], steps[count:]

@@ -17,6 +17,13 @@ site-years in one file and one run; ``fluxpart report`` of the one-year result; 
 one-year run again with a bytecode cache (where ``PYTHONDONTWRITEBYTECODE`` is set, as on
 this project's machine, every other row recompiles fluxpart's modules at start-up).
 
+``--stages`` instead prints where the CPU time of one cold ``fluxpart run`` of the
+one-year example goes, each in a fresh interpreter (best of ``--repeats``): the start-up
+imports of NumPy, pandas and pyarrow, of fluxpart's own modules, and the command's stages
+(reading, each pipeline stage, writing), each also as a multiple of the reference
+workload. Cold figures include first-call costs (pandas' lazy imports, caches) that
+``bench_process.py --stages``, which times warm repeats, does not.
+
 Targets (issue 17): ``run`` of one site-year <= 10 reference workloads (~0.8 s CPU on
 an idle 2-core machine); ten site-years <= 5x one; ``import fluxpart`` <= 0.5 s;
 ``report`` <= 2 s; peak memory of one site-year <= 250 MB RSS.
@@ -95,6 +102,80 @@ def run_command(arguments: list[str], env: dict | None = None) -> tuple[float, f
     return usage.ru_utime + usage.ru_stime, wall, usage.ru_maxrss / 1024.0
 
 
+# The child of --stages: times the start-up imports, then runs the command with each stage
+# function wrapped (CPU seconds, time.process_time since the interpreter started), and
+# writes the figures as JSON to the file named by its first argument.
+_STAGE_CHILD = r"""
+import contextlib, functools, importlib, io, json, sys, time
+started = time.process_time()
+import numpy, pandas, pyarrow, pyarrow.parquet  # noqa: E401
+libraries = time.process_time()
+from fluxpart import cli
+import fluxpart.io, fluxpart.pipeline, fluxpart.resultdir  # noqa: E401
+own = time.process_time()
+spent = {}
+STAGES = [("fluxpart.io", "SiteConfig.read", "read the input"),
+          ("fluxpart.pipeline", "process", "process (all stages)"),
+          ("fluxpart.pipeline", "_clock_and_preflight", "  clock and preflight"),
+          ("fluxpart.pipeline", "_chosen_temperature", "  respiration temperature"),
+          ("fluxpart.pipeline", "_ustar_thresholds", "  u* threshold and bootstrap"),
+          ("fluxpart.pipeline", "_fill_and_partition", "  fill and partition (u* runs)"),
+          ("fluxpart.gapfill", "fill_marginal", "    NEE fills"),
+          ("fluxpart.partition.nighttime", "partition_nighttime", "    nighttime"),
+          ("fluxpart.partition.daytime", "partition_daytime", "    daytime"),
+          ("fluxpart.pipeline", "_uncertainty", "  uncertainty"),
+          ("fluxpart.pipeline", "Result.write", "write the result folder")]
+def timed(label, function):
+    @functools.wraps(function)
+    def wrapper(*args, **kwargs):
+        start = time.process_time()
+        try:
+            return function(*args, **kwargs)
+        finally:
+            spent[label] = spent.get(label, 0.0) + time.process_time() - start
+    return wrapper
+for module_name, name, label in STAGES:
+    owner = importlib.import_module(module_name)
+    *path, attribute = name.split(".")
+    for part in path:
+        owner = getattr(owner, part)
+    setattr(owner, attribute, timed(label, getattr(owner, attribute)))
+with contextlib.redirect_stdout(io.StringIO()):
+    cli.main(sys.argv[2:])
+figures = {"start-up: numpy, pandas, pyarrow": libraries - started,
+           "start-up: fluxpart's modules": own - libraries,
+           **{label: spent[label] for _, _, label in STAGES if label in spent},
+           "whole command (in-process CPU)": time.process_time()}
+with open(sys.argv[1], "w") as handle:
+    json.dump(figures, handle)
+"""
+
+
+def print_stages(repeats: int) -> None:
+    """CPU of each stage of one cold `fluxpart run` of the one-year example (best of repeats)."""
+    import json
+
+    with tempfile.TemporaryDirectory() as scratch:
+        scratch = Path(scratch)
+        one_year, _ = write_inputs(scratch)
+        best: dict = {}
+        reference = [time_reference()]
+        for _ in range(repeats):
+            shutil.rmtree(scratch / "out", ignore_errors=True)
+            subprocess.run([sys.executable, "-c", _STAGE_CHILD, str(scratch / "stages.json"),
+                            "run", str(one_year), "--out", str(scratch / "out"), "--quiet"],
+                           check=True)
+            figures = json.loads((scratch / "stages.json").read_text())
+            for label, seconds in figures.items():
+                best[label] = min(best.get(label, seconds), seconds)
+            reference.append(time_reference())
+    unit = statistics.median(reference)
+    print(f"reference workload: {unit:.3f} s CPU (median of {len(reference)} timings); load "
+          f"average {os.getloadavg()[0]:.1f}; best of {repeats} cold runs, fresh interpreters")
+    for label, seconds in best.items():
+        print(f"  {seconds:6.3f} s  {seconds / unit:5.1f} x ref  {label}")
+
+
 def write_inputs(directory: Path) -> tuple[Path, Path]:
     """Site configs of the one-year Quillmoor example and of a ten-year file in its layout."""
     from fluxpart import demo
@@ -121,8 +202,13 @@ def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--repeats", type=int, default=1,
                         help="runs of each command; the smallest CPU time is kept")
+    parser.add_argument("--stages", action="store_true",
+                        help="print the CPU time of each stage of one cold `run` instead")
     parser.add_argument("--write-inputs", metavar="DIR", help=argparse.SUPPRESS)
     options = parser.parse_args()
+    if options.stages:
+        print_stages(options.repeats)
+        return
     if options.write_inputs:
         print(*write_inputs(Path(options.write_inputs)))
         return
