@@ -67,17 +67,23 @@ _UNHASHED = {
 
 
 def library_versions() -> dict[str, str]:
-    """Return the versions of Python and of the libraries that shape the numbers."""
+    """Return the versions of Python and of the libraries that shape the numbers.
+
+    fluxpart's own is the running code's ``__version__``: the installed distribution's
+    metadata is written at install time, so an editable install keeps the version it was
+    installed at while the code moves on.
+    """
+    from . import __version__
+
     versions = {"python": platform.python_version()}
     for name in _LIBRARIES:
+        if name == "fluxpart":
+            versions[name] = __version__
+            continue
         try:
             versions[name] = metadata.version(name)
         except metadata.PackageNotFoundError:
-            if name == "fluxpart":
-                from . import __version__
-                versions[name] = __version__
-            else:
-                versions[name] = "not installed"
+            versions[name] = "not installed"
     return versions
 
 

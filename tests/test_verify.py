@@ -313,3 +313,13 @@ def test_a_missing_folder_or_a_file_is_named_as_such(tmp_path, capsys):
     assert main(["verify", str(config)]) == 2
     err = capsys.readouterr().err
     assert "is a file, not a result folder" in err and err.count("error:") == 1
+
+
+def test_manifest_records_the_running_code_version():
+    """The manifest's fluxpart version is the running code's __version__, not the installed
+    distribution's metadata, which an editable install keeps from install time (it said
+    0.3.0 under 0.4.0 code)."""
+    import fluxpart
+    from fluxpart.manifest import library_versions
+
+    assert library_versions()["fluxpart"] == fluxpart.__version__
