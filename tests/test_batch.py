@@ -409,3 +409,24 @@ def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster
             pd.testing.assert_frame_equal(got[expected.columns], expected, check_dtype=False)
     with pytest.raises(ConfigError, match="network table 'weekly'"):
         batch.read_network(report.out, "weekly")
+
+
+def test_local_workers_run_without_the_statistical_profiler():
+    """fluxpart's own local cluster switches off Dask's 10-ms stack sampler (it cost 15 % of
+    a site's CPU in a worker) and keeps glibc's malloc default; the environment of this
+    process is left as it was."""
+    import os
+
+    from fluxpart.batch import _client
+
+    before = dict(os.environ)
+    client, local = _client(None, 1)
+    try:
+        settings = client.run(lambda: (
+            __import__("dask").config.get("distributed.worker.profile.enabled"),
+            __import__("os").environ.get("MALLOC_TRIM_THRESHOLD_")))
+    finally:
+        client.close()
+        local.close()
+    assert list(settings.values()) == [(False, None)]
+    assert dict(os.environ) == before
