@@ -659,15 +659,15 @@ def _check_e0_settings(widths, min_points, min_range, bounds, max_relative_error
     if not _is_number(max_relative_error) or max_relative_error <= 0:
         raise ConfigError(f"daytime e0_max_relative_error = {max_relative_error!r}: expected "
                           "a positive number")
-    if (isinstance(consistency_z, bool) or not isinstance(consistency_z, (int, float, np.number))
-            or np.isnan(consistency_z) or consistency_z <= 0):
-        raise ConfigError(f"daytime consistency_z = {consistency_z!r}: expected a positive "
-                          "number of standard errors (inf disables the check)")
-    if (isinstance(rref_max_relative_error, bool)
-            or not isinstance(rref_max_relative_error, (int, float, np.number))
-            or np.isnan(rref_max_relative_error) or rref_max_relative_error <= 0):
-        raise ConfigError(f"daytime rref_max_relative_error = {rref_max_relative_error!r}: "
-                          "expected a positive number (inf disables the check)")
+    _check_positive_or_inf("consistency_z", consistency_z, "number of standard errors")
+    _check_positive_or_inf("rref_max_relative_error", rref_max_relative_error, "number")
+
+
+def _check_positive_or_inf(name, value, what):
+    if (isinstance(value, bool) or not isinstance(value, (int, float, np.number))
+            or np.isnan(value) or value <= 0):
+        raise ConfigError(f"daytime {name} = {value!r}: expected a positive {what} (inf "
+                          "disables the check)")
 
 
 def _supplied_e0(e0, n, index):
@@ -780,7 +780,7 @@ def _window_e0(days, centres, centre_years, usable_night, nee, arrhenius, temper
         if not informative.any():
             continue
         rows, positions, inside = todo[informative], positions[informative], inside[informative]
-        records = night_positions[positions]
+        records = records[informative]
         blocks = max(1, int(round(width / block_days)))
         offset = night_days[positions] - low[informative][:, None]
         block = np.clip((offset * blocks / width).astype(np.int64), 0, blocks - 1)

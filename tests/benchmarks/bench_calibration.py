@@ -84,12 +84,17 @@ def summarise(table: pd.DataFrame) -> pd.DataFrame:
     return pd.DataFrame(rows).set_index("flux")
 
 
-def main(argv=None) -> int:
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--sites", type=int, default=35)
+def seed_arguments(description: str, sites: int, argv=None) -> argparse.Namespace:
+    """``--start`` (first seed), ``--sites`` (how many, default `sites`) and ``--csv``."""
+    parser = argparse.ArgumentParser(description=description)
+    parser.add_argument("--sites", type=int, default=sites)
     parser.add_argument("--start", type=int, default=0)
     parser.add_argument("--csv", default=None)
-    args = parser.parse_args(argv)
+    return parser.parse_args(argv)
+
+
+def main(argv=None) -> int:
+    args = seed_arguments(__doc__.splitlines()[0], 35, argv)
     rows = []
     for seed in range(args.start, args.start + args.sites):
         row = run_one(seed)

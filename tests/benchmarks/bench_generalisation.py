@@ -18,7 +18,6 @@ Variant ``seed % 7`` is drawn from scenario seed ``1000 + seed``.
 
 from __future__ import annotations
 
-import argparse
 import sys
 from pathlib import Path
 
@@ -26,7 +25,7 @@ import pandas as pd
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
-from bench_calibration import FLUXES  # noqa: E402  (this folder: flux -> truth column)
+from bench_calibration import FLUXES, seed_arguments  # noqa: E402  (this folder)
 
 import fluxpart  # noqa: E402
 from fluxpart import scenarios  # noqa: E402
@@ -89,11 +88,7 @@ def run_one(seed: int) -> dict:
 
 
 def main() -> None:
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--start", type=int, default=0)
-    parser.add_argument("--sites", type=int, default=14)
-    parser.add_argument("--csv", default=None)
-    args = parser.parse_args()
+    args = seed_arguments(__doc__.splitlines()[0], 14)
     rows = []
     for seed in range(args.start, args.start + args.sites):
         row = run_one(seed)
