@@ -381,18 +381,29 @@ def generate(scenario: Scenario | int) -> SiteYear:
                           freq=f"{_BASE_MINUTES}min", inclusive="left", name="time")
     weather = _weather(weather_rng, index, scenario.site, p, _BASE_MINUTES)
     gpp, reco = _fluxes(index, weather, scenario.site, p, _BASE_MINUTES)
-    step = scenario.interval_minutes
-    if step != _BASE_MINUTES:
-        factor = step // _BASE_MINUTES
-        coarse = pd.date_range(index[0], periods=len(index) // factor, freq=f"{step}min",
-                               name="time")
-        weather = pd.DataFrame({c: weather[c].to_numpy().reshape(-1, factor).mean(axis=1)
-                                for c in weather.columns}, index=coarse)
-        gpp = gpp.reshape(-1, factor).mean(axis=1)
-        reco = reco.reshape(-1, factor).mean(axis=1)
-    frame = _measure(measure_rng, weather, gpp, reco, step, p)
+    weather, gpp, reco = _coarsen(weather, gpp, reco, scenario.interval_minutes)
+    frame = _measure(measure_rng, weather, gpp, reco, scenario.interval_minutes, p)
+    return _with_truth(scenario, frame, gpp, reco)
+
+
+def _coarsen(weather, gpp, reco, step_minutes):
+    """The 30-minute physics as records of `step_minutes`: means of the half-hours."""
+    if step_minutes == _BASE_MINUTES:
+        return weather, gpp, reco
+    factor = step_minutes // _BASE_MINUTES
+    coarse = pd.date_range(weather.index[0], periods=len(weather) // factor,
+                           freq=f"{step_minutes}min", name="time")
+    weather = pd.DataFrame({c: weather[c].to_numpy().reshape(-1, factor).mean(axis=1)
+                            for c in weather.columns}, index=coarse)
+    return (weather, gpp.reshape(-1, factor).mean(axis=1),
+            reco.reshape(-1, factor).mean(axis=1))
+
+
+def _with_truth(scenario, frame, gpp, reco) -> SiteYear:
+    """The site-year of `frame` with its per-record and annual truth [g C m-2]."""
     truth = pd.DataFrame({"gpp": gpp, "reco": reco, "nee": reco - gpp}, index=frame.index)
-    annual = pd.Series({name: float(flux_to_carbon(truth[name].to_numpy(), step).sum())
+    annual = pd.Series({name: float(flux_to_carbon(truth[name].to_numpy(),
+                                                   scenario.interval_minutes).sum())
                         for name in ("gpp", "reco", "nee")})
     return SiteYear(scenario=scenario, frame=frame, site=scenario.site, truth=truth,
                     annual_truth=annual)

@@ -65,12 +65,8 @@ def generate(seed: int) -> tuple[str, scenarios.SiteYear]:
         scenarios.ARCHETYPES.update(saved)
 
 
-def run_one(seed: int) -> dict:
-    """Process one site-year; return its errors, coverage and u* thresholds."""
-    name, site_year = generate(seed)
-    row = {"seed": seed, "variant": name, "interval": site_year.scenario.interval_minutes,
-           "latitude": site_year.site.latitude,
-           "ustar_planted": site_year.scenario.parameters["ustar_threshold"]}
+def scored(site_year: scenarios.SiteYear, row: dict) -> dict:
+    """Process `site_year` with defaults; add its errors, coverage and u* found to `row`."""
     try:
         result = fluxpart.process(site_year.frame, site_year.site)
     except Exception as error:  # noqa: BLE001 - a benchmark reports failures and goes on
@@ -87,16 +83,29 @@ def run_one(seed: int) -> dict:
     return row
 
 
-def main() -> None:
-    args = seed_arguments(__doc__.splitlines()[0], 14)
+def run_one(seed: int) -> dict:
+    """Process one site-year; return its errors, coverage and u* thresholds."""
+    name, site_year = generate(seed)
+    return scored(site_year, {
+        "seed": seed, "variant": name, "interval": site_year.scenario.interval_minutes,
+        "latitude": site_year.site.latitude,
+        "ustar_planted": site_year.scenario.parameters["ustar_threshold"]})
+
+
+def report(run, label: str, description: str, argv=None) -> None:
+    """Run `run(seed)` over the seeds of the command line; print each row and the summary.
+
+    `label` names the row's key printed beside the seed (variant or archetype).
+    """
+    args = seed_arguments(description, 14, argv)
     rows = []
     for seed in range(args.start, args.start + args.sites):
-        row = run_one(seed)
+        row = run(seed)
         rows.append(row)
         if "failure" in row:
-            print(f"seed {seed:3d} {row['variant']:<20s} FAILED {row['failure']}", flush=True)
+            print(f"seed {seed:3d} {row[label]:<22s} FAILED {row['failure']}", flush=True)
             continue
-        print(f"seed {seed:3d} {row['variant']:<20s} {row['interval']} min  NEE err "
+        print(f"seed {seed:3d} {row[label]:<22s} {row['interval']} min  NEE err "
               f"{row['nee_error']:+6.1f}  " + "  ".join(
                   f"{c} {100 * row[f'{c}_relative']:+5.1f}%" for c in list(FLUXES)[1:])
               + f"  u* {row['ustar_found']:.3f}/{row['ustar_planted']:.3f}", flush=True)
@@ -109,6 +118,10 @@ def main() -> None:
               f"{100 * done[f'{column}_covered'].mean():5.1f} %")
     if args.csv:
         table.to_csv(args.csv, index=False)
+
+
+def main() -> None:
+    report(run_one, "variant", __doc__.splitlines()[0])
 
 
 if __name__ == "__main__":

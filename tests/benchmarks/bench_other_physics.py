@@ -46,11 +46,9 @@ from scipy.signal import lfilter
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
-from bench_calibration import FLUXES, seed_arguments  # noqa: E402  (this folder)
+from bench_generalisation import report, scored  # noqa: E402  (this folder)
 
-import fluxpart  # noqa: E402
 from fluxpart import scenarios  # noqa: E402
-from fluxpart.budget import flux_to_carbon  # noqa: E402
 from fluxpart.demo import _mark  # noqa: E402
 
 _NIGHT_RG = 10.0   # W m-2, as in fluxpart.scenarios
@@ -141,68 +139,23 @@ def generate(seed: int) -> scenarios.SiteYear:
     weather = scenarios._weather(weather_rng, index, scenario.site, p, 30)
     capacity = scenarios._capacity(index, weather, scenario.site, p, 30)
     gpp, reco = _fluxes(weather, capacity, p, q)
-    step = scenario.interval_minutes
-    if step != 30:
-        factor = step // 30
-        coarse = pd.date_range(index[0], periods=len(index) // factor, freq=f"{step}min",
-                               name="time")
-        weather = pd.DataFrame({c: weather[c].to_numpy().reshape(-1, factor).mean(axis=1)
-                                for c in weather.columns}, index=coarse)
-        gpp = gpp.reshape(-1, factor).mean(axis=1)
-        reco = reco.reshape(-1, factor).mean(axis=1)
-    frame = _measure(measure_rng, weather, gpp, reco, step, p, q)
-    truth = pd.DataFrame({"gpp": gpp, "reco": reco, "nee": reco - gpp}, index=frame.index)
-    annual = pd.Series({name: float(flux_to_carbon(truth[name].to_numpy(), step).sum())
-                        for name in ("gpp", "reco", "nee")})
-    return scenarios.SiteYear(scenario=scenario, frame=frame, site=scenario.site, truth=truth,
-                              annual_truth=annual)
+    weather, gpp, reco = scenarios._coarsen(weather, gpp, reco, scenario.interval_minutes)
+    frame = _measure(measure_rng, weather, gpp, reco, scenario.interval_minutes, p, q)
+    return scenarios._with_truth(scenario, frame, gpp, reco)
 
 
 def run_one(seed: int) -> dict:
     """Process one site-year; return its errors, coverage and u* thresholds."""
     site_year = generate(seed)
     scenario = site_year.scenario
-    row = {"seed": seed, "archetype": scenario.archetype,
-           "interval": scenario.interval_minutes, "driver": scenario.parameters["driver"],
-           "ustar_planted": scenario.parameters["ustar_threshold"]}
-    try:
-        result = fluxpart.process(site_year.frame, site_year.site)
-    except Exception as error:  # noqa: BLE001 - a benchmark reports failures and goes on
-        row["failure"] = f"{type(error).__name__}: {error}"[:200]
-        return row
-    annual = result.annual.loc[scenario.year]
-    row["ustar_found"] = float(annual["ustar_threshold"])
-    for column, truth_name in FLUXES.items():
-        truth = float(site_year.annual_truth[truth_name])
-        row[f"{column}_error"] = float(annual[column]) - truth
-        row[f"{column}_relative"] = row[f"{column}_error"] / abs(truth)
-        row[f"{column}_covered"] = bool(annual[f"{column}_ci95_low"] <= truth
-                                        <= annual[f"{column}_ci95_high"])
-    return row
+    return scored(site_year, {
+        "seed": seed, "archetype": scenario.archetype, "interval": scenario.interval_minutes,
+        "driver": scenario.parameters["driver"],
+        "ustar_planted": scenario.parameters["ustar_threshold"]})
 
 
 def main() -> None:
-    args = seed_arguments(__doc__.splitlines()[0], 14)
-    rows = []
-    for seed in range(args.start, args.start + args.sites):
-        row = run_one(seed)
-        rows.append(row)
-        if "failure" in row:
-            print(f"seed {seed:3d} {row['archetype']:<22s} FAILED {row['failure']}", flush=True)
-            continue
-        print(f"seed {seed:3d} {row['archetype']:<22s} {row['interval']} min  NEE err "
-              f"{row['nee_error']:+6.1f}  " + "  ".join(
-                  f"{c} {100 * row[f'{c}_relative']:+5.1f}%" for c in list(FLUXES)[1:])
-              + f"  u* {row['ustar_found']:.3f}/{row['ustar_planted']:.3f}", flush=True)
-    table = pd.DataFrame(rows)
-    done = table[table.get("failure", pd.Series(index=table.index, dtype=object)).isna()]
-    print(f"\n{len(done)} of {len(table)} site-years processed")
-    for column in FLUXES:
-        print(f"{column:16s} median |error| {done[f'{column}_error'].abs().median():6.1f} "
-              f"worst {done[f'{column}_error'].abs().max():6.1f} g C m-2; 95 % coverage "
-              f"{100 * done[f'{column}_covered'].mean():5.1f} %")
-    if args.csv:
-        table.to_csv(args.csv, index=False)
+    report(run_one, "archetype", __doc__.splitlines()[0])
 
 
 if __name__ == "__main__":
