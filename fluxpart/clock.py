@@ -230,6 +230,26 @@ def _correlation(envelope: np.ndarray, model: np.ndarray) -> float:
     return float((a * b).sum() / scale) if scale > 0 else np.nan
 
 
+def _correlations(envelope: np.ndarray, models: np.ndarray) -> np.ndarray:
+    """``_correlation(envelope, row)`` for every row of `models`, bit for bit.
+
+    Where everything is finite (the usual month) the rows are done in one pass;
+    otherwise each row takes its own mask.
+    """
+    if envelope.size < 4 or not (np.isfinite(envelope).all() and np.isfinite(models).all()):
+        return np.array([_correlation(envelope, row) for row in models])
+    a = envelope - envelope.mean()
+    b = models - models.mean(axis=1, keepdims=True)
+    scale = np.sqrt((a * a).sum() * (b * b).sum(axis=1))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(scale > 0, (a * b).sum(axis=1) / scale, np.nan)
+
+
+def _rolled(values: np.ndarray, shifts) -> np.ndarray:
+    """``np.roll(values, k)`` for each k in `shifts`, one row each."""
+    return values[(np.arange(len(values)) - np.asarray(shifts)[:, None]) % len(values)]
+
+
 def _crossings(curve: np.ndarray, interval_minutes: float, level: float) -> tuple:
     """Midpoint [minute of the day] and width [min] between a level's rising and falling crossing.
 
@@ -345,15 +365,14 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
         if np.nanmax(envelope) - np.nanmin(envelope) < MIN_DIURNAL_RANGE:
             row["reason"] = "measured Rg has no diurnal cycle"
             continue
-        coarse = np.array([_correlation(envelope, np.roll(composite[0.0], k))
-                           for k in range(slots)])
+        coarse = _correlations(envelope, _rolled(composite[0.0], range(slots)))
         if not np.isfinite(coarse).any():
             row["reason"] = "no correlation can be formed"
             continue
         best = int(np.nanargmax(coarse))
         records = best if best <= slots // 2 else best - slots
-        scores = np.array([_correlation(envelope, np.roll(composite[lag], records))
-                           for lag in fine_lags])
+        scores = _correlations(envelope, np.stack([np.roll(composite[lag], records)
+                                                   for lag in fine_lags]))
         i = int(np.nanargmax(scores))
         lag = records * interval + fine_lags[i]
         if 0 < i < len(fine_lags) - 1 and np.isfinite(scores[i - 1:i + 2]).all():

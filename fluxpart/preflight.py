@@ -143,8 +143,9 @@ def _constant(frame: pd.DataFrame, temperature: str) -> list:
     return findings
 
 
-def _runs(values: np.ndarray):
-    """Runs of equal consecutive present values (gaps skipped): their present positions."""
+def _runs(values: np.ndarray, min_length: float = 2):
+    """Runs of equal consecutive present values (gaps skipped) of at least `min_length`
+    (and 2) records: their present positions."""
     present = np.flatnonzero(np.isfinite(values))
     if present.size < 2:
         return []
@@ -152,7 +153,9 @@ def _runs(values: np.ndarray):
     breaks = np.flatnonzero(kept[1:] != kept[:-1]) + 1
     starts = np.concatenate([[0], breaks])
     ends = np.concatenate([breaks, [kept.size]])
-    return [present[a:b] for a, b in zip(starts, ends, strict=True) if b - a > 1]
+    # most runs are short (zeros at night, repeated readings); only the long ones are sliced
+    long = np.flatnonzero(ends - starts >= max(min_length, 2))
+    return [present[starts[i]:ends[i]] for i in long]
 
 
 def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
@@ -166,9 +169,9 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
             continue
         values = pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=float)
         stuck = []
-        for positions in _runs(values):
+        for positions in _runs(values, min_length=days_needed * per_day):
             value = values[positions[0]]
-            if value in natural or positions.size < days_needed * per_day:
+            if value in natural:
                 continue
             sunlit = int(sun_up[positions].sum())
             if name == "rg" and sunlit < _STUCK_SUNLIT_RECORDS:

@@ -1319,11 +1319,13 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     index = pd.Index(pd.unique(keys))
     fluxes = inputs.fluxes
     carbon = (fluxes * factor).groupby(keys).sum(min_count=1).reindex(index)
-    out = pd.DataFrame(index=index)
+    out = {}                    # the columns, made a table once at the end
+
+    codes = pd.factorize(keys)[0]            # position in `index` of each record's period
 
     def per_period(values):
-        return pd.Series(np.asarray(values, dtype=float), index=keys).groupby(level=0).sum() \
-            .reindex(index).fillna(0.0)
+        sums = pd.Series(np.asarray(values, dtype=float)).groupby(codes).sum()
+        return pd.Series(sums.to_numpy(), index=index)
 
     def grouped(groups, values):
         return _grouped_square(keys, groups, values).reindex(index).fillna(0.0)
@@ -1359,12 +1361,13 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         gap_id = _run_ids(filled)
         gap_var, bias, bias_se = fill_variance(filled)
         gap_var_day = fill_variance(filled & ~night)[0]
-    out["nee_uncertainty_gapfill"] = np.sqrt(gap_var) if gapfill_known else np.nan
-    out["gpp_nighttime_uncertainty_gapfill"] = np.sqrt(gap_var_day) if gapfill_known else np.nan
+    unknown = pd.Series(np.nan, index=index)
+    out["nee_uncertainty_gapfill"] = np.sqrt(gap_var) if gapfill_known else unknown
+    out["gpp_nighttime_uncertainty_gapfill"] = np.sqrt(gap_var_day) if gapfill_known else unknown
     out["gpp_nighttime_uncertainty_random"] = np.sqrt(
         per_period(np.square(np.where(night, 0.0, noise))) * factor**2)
-    out["nee_uncertainty_gapfill_bias"] = bias if gapfill_known else np.nan
-    out["nee_uncertainty_gapfill_bias_se"] = bias_se if gapfill_known else np.nan
+    out["nee_uncertainty_gapfill_bias"] = bias if gapfill_known else unknown
+    out["nee_uncertainty_gapfill_bias_se"] = bias_se if gapfill_known else unknown
 
     run_sums = {name: (frame * factor).groupby(keys).sum(min_count=1).reindex(index)
                 for name, frame in inputs.runs.items()}
@@ -1442,7 +1445,7 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         ustar["gpp_daytime"], parameters["gpp_daytime"], method["gpp"], driver)
     for flux in _FLUXES:
         out[f"{flux}_sigma"] = out[f"{flux}_uncertainty_total"].where(carbon[flux].notna())
-    return out
+    return pd.DataFrame(out, index=index)
 
 
 def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame,

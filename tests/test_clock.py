@@ -218,3 +218,27 @@ def test_lagged_potential_equals_the_direct_computation(minutes):
             expected = potential_radiation(index - pd.Timedelta(minutes=float(lag)), -33.9,
                                            18.4, 2.0, float(minutes))
             np.testing.assert_array_equal(got[float(lag)], expected)
+
+
+@pytest.mark.parametrize("missing", [(), (3, 17)])
+def test_lag_correlations_in_one_pass_equal_one_lag_at_a_time(missing):
+    """The month's correlations over all lags at once equal, to the last bit, one call per
+    ``numpy.roll`` lag, and agree with ``numpy.corrcoef`` (NumPy 2.x) where every slot has
+    data; slots without Rg (NaN) take the per-lag masks."""
+    from fluxpart.clock import _correlation, _correlations, _rolled
+
+    slots = 48
+    hours = (np.arange(slots) + 0.5) / 2.0
+    model = np.clip(900.0 * np.cos((hours - 12.3) * np.pi / 12.0), 0.0, None)
+    envelope = np.clip(700.0 * np.cos((hours - 12.9) * np.pi / 12.0), 0.0, None) \
+        + np.random.default_rng(3).normal(0.0, 20.0, slots)
+    envelope[list(missing)] = np.nan
+    rolled = _rolled(model, range(slots))
+    for k in range(slots):
+        np.testing.assert_array_equal(rolled[k], np.roll(model, k))
+    got = _correlations(envelope, rolled)
+    expected = np.array([_correlation(envelope, np.roll(model, k)) for k in range(slots)])
+    np.testing.assert_array_equal(got, expected)
+    ok = np.isfinite(envelope)
+    reference = [np.corrcoef(envelope[ok], np.roll(model, k)[ok])[0, 1] for k in range(slots)]
+    np.testing.assert_allclose(got, reference, rtol=0, atol=1e-12)
