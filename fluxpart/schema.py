@@ -247,7 +247,8 @@ for _flux in _FLUXES:
             f"(carbon; sum {_sign} 1.96 x {_flux}_uncertainty_total); {_NOT_COVERED}")
 for _flux in _FLUXES[1:]:
     UNCERTAINTY_COLUMNS[f"{_flux}_uncertainty_parameters"] = (
-        CARBON, f"1 sigma: fitted-parameter part of {_flux} (carbon)")
+        CARBON, f"1 sigma: fitted-parameter part of {_flux} (carbon): the fitted E0 and "
+        "window Rref, and Rref interpolated between window centres")
 del _flux, _end, _sign, _word
 
 #: Unit and description of the random-error model tables

@@ -555,3 +555,84 @@ def test_fill_bias_part_is_the_larger_of_the_bias_and_its_standard_error(bias, b
     assert out["nee_uncertainty_gapfill_bias"] == pytest.approx(big)
     assert out["nee_uncertainty_gapfill_bias_se"] == pytest.approx(small)
     assert out["nee_uncertainty_gapfill"] == pytest.approx(max(big, small))
+
+
+def _random_walk_windows(rng, centres_days, drift, relative_se=0.0):
+    """Windows whose log Rref follows a random walk of variance `drift` per day."""
+    steps = np.diff(centres_days, prepend=centres_days[0])
+    log_rref = np.log(2.0) + np.cumsum(rng.normal(0.0, np.sqrt(drift * steps)))
+    rref = np.exp(log_rref) * (1.0 + relative_se * rng.standard_normal(centres_days.size))
+    start = pd.Timestamp("2021-01-01")
+    centres = start + pd.to_timedelta(centres_days, unit="D")
+    return pd.DataFrame({"window_start": centres - pd.Timedelta(days=2),
+                         "window_end": centres + pd.Timedelta(days=2),
+                         "rref": rref, "rref_se": relative_se * rref}), log_rref
+
+
+def test_interpolation_error_is_the_brownian_bridge_of_the_sites_own_drift():
+    """Known truth (invented): log Rref a random walk of variance q per day. The drift
+    measured on the windows recovers q, and the stated variance of the linearly
+    interpolated value at the middle of a 20-day gap matches the simulated one: the
+    Brownian bridge, Var = q (t - c1)(c2 - t) / (c2 - c1) (Ross 1996, Stochastic
+    Processes, ch. 8 (m)); checked by simulation, 4000 walks."""
+    from fluxpart.uncertainty import interpolation_error
+
+    rng = np.random.default_rng(7)
+    drift = 0.004
+    centres = np.r_[np.arange(2.0, 100.0, 4.0), np.arange(122.0, 200.0, 4.0)]  # gap 98 -> 122
+    index = pd.date_range("2021-01-01", periods=200 * 48, freq="30min")
+    estimates = []
+    for _ in range(40):
+        windows, _ = _random_walk_windows(rng, centres, drift, relative_se=0.05)
+        estimates.append(interpolation_error(index, windows)[2])
+    assert np.mean(estimates) == pytest.approx(drift, rel=0.15)
+
+    windows, _ = _random_walk_windows(rng, centres, drift)
+    interval, sd, _ = interpolation_error(index, windows)
+    middle = index.get_loc(pd.Timestamp("2021-04-21 00:00"))        # day 110
+    at_centre = index.get_loc(pd.Timestamp("2021-01-11 00:00"))     # day 10: a centre
+    assert sd[at_centre] == pytest.approx(0.0, abs=1e-12)
+    assert interval[middle] != interval[at_centre]
+    # simulated: the walk between c1 = 98 and c2 = 122 at day 110, given both ends
+    walks = np.cumsum(rng.normal(0.0, np.sqrt(drift * 0.5), size=(4000, 48)), axis=1)
+    truth_mid, end = walks[:, 23], walks[:, 47]                        # 12 and 24 days on
+    simulated = np.var(truth_mid - 0.5 * end)
+    stated = (sd[middle] ** 2) / interpolation_error(index, windows)[2] * drift
+    assert stated == pytest.approx(drift * 12.0 * 12.0 / 24.0, rel=1e-9)
+    assert simulated == pytest.approx(drift * 12.0 * 12.0 / 24.0, rel=0.1)
+
+
+def test_interpolation_error_widens_rref_parameters_across_a_long_gap():
+    """The parameter part of annual nighttime Reco grows when three weeks of Rref
+    windows are missing (their Rref interpolated), and not counting the interpolation
+    (inputs without it) gives the smaller part: the added variance is the bridge's."""
+    from dataclasses import replace
+
+    from fluxpart import uncertainty
+    from fluxpart.uncertainty import interpolation_error, period_uncertainty
+
+    rng = np.random.default_rng(8)
+    index = pd.date_range("2021-01-01", periods=365 * 48, freq="30min")
+    centres = np.r_[np.arange(2.0, 150.0, 4.0), np.arange(174.0, 365.0, 4.0)]
+    windows, _ = _random_walk_windows(rng, centres, 0.004, relative_se=0.1)
+    reco = np.full(len(index), 2.0)
+    fluxes = pd.DataFrame({"nee": reco, "gpp_nighttime": 0.0 * reco,
+                           "reco_nighttime": reco, "gpp_daytime": 0.0 * reco,
+                           "reco_daytime": reco}, index=index)
+    window, relative = uncertainty.window_membership(index, windows)
+    interval, spread, drift = interpolation_error(index, windows)
+    assert drift > 0
+    base = uncertainty.UncertaintyInputs(
+        measured=np.ones(len(index), bool), noise_sigma=np.zeros(len(index)),
+        is_night=np.ones(len(index), bool), fluxes=fluxes, runs={}, gapfill_model=None,
+        e0_delta=np.zeros(len(index)), night_window=window, night_relative_se=relative,
+        day_window=window, day_relative_se=relative)
+    counted = replace(base, night_interval=interval, night_interpolation_sd=spread)
+    keys = np.asarray(index.year)
+    without = period_uncertainty(base, keys, 30)["reco_nighttime_uncertainty_parameters"]
+    with_gap = period_uncertainty(counted, keys, 30)["reco_nighttime_uncertainty_parameters"]
+    factor = 30 * 60 * 12.011e-6
+    extra = sum(float(np.sum(spread[interval == i] * 2.0 * factor)) ** 2
+                for i in np.unique(interval))
+    assert with_gap.iloc[0] ** 2 == pytest.approx(without.iloc[0] ** 2 + extra, rel=1e-9)
+    assert with_gap.iloc[0] > without.iloc[0]
