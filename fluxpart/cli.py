@@ -375,7 +375,13 @@ def _lazy(module: str, function: str):
 
 
 def main(argv=None) -> int:
-    """Run the command line; return the exit status."""
+    """Run the command line; return the exit status.
+
+    Called without `argv` (the ``fluxpart`` script, ``python -m fluxpart``), the process
+    ends right after: the objects still alive are then frozen (:func:`gc.freeze`), so the
+    interpreter's exit frees them without its garbage collection passes over every object
+    the imports and the command left (~0.2 s CPU of a 2 s ``report``).
+    """
     args = _parser().parse_args(argv)
     thresholds = gc.get_threshold()
     gc.set_threshold(*_GC_THRESHOLDS)
@@ -398,3 +404,5 @@ def main(argv=None) -> int:
         return 0
     finally:
         gc.set_threshold(*thresholds)
+        if argv is None:
+            gc.freeze()

@@ -1679,9 +1679,10 @@ def draw_figures(written: Written, progress=None) -> list[Figure]:
     collecting = gc.isenabled()
     gc.disable()
     try:
-        with drawing.mpl.rc_context():
-            drawing.mpl.rcdefaults()
-            drawing.mpl.rcParams.update(_RC)
+        # matplotlib's defaults, whatever a matplotlibrc says (as rcdefaults() gives them,
+        # without importing the style library it reads first), and the report's settings
+        defaults = {k: v for k, v in drawing.mpl.rcParamsDefault.items() if k != "backend"}
+        with drawing.mpl.rc_context({**defaults, **_RC}):
             for paint in painters:
                 figures.append(paint())
                 tick()

@@ -34,7 +34,6 @@ import hashlib
 import json
 import os
 import platform
-from importlib import metadata
 from pathlib import Path
 
 from .errors import InputFileError
@@ -73,6 +72,8 @@ def library_versions() -> dict[str, str]:
     metadata is written at install time, so an editable install keeps the version it was
     installed at while the code moves on.
     """
+    from importlib import metadata  # here: every command imports this module, few write
+
     from . import __version__
 
     versions = {"python": platform.python_version()}
