@@ -965,6 +965,36 @@ def e0_sigma(e0_annual: pd.DataFrame, e0_windows: pd.DataFrame) -> pd.Series:
     return pd.concat([se, spread / np.sqrt(used)], axis=1).max(axis=1, skipna=True)
 
 
+def _retained_windows(windows: pd.DataFrame, value: str, se: str):
+    """The windows a parameter part counts, in time order, and their relative errors.
+
+    Rejected windows (an ``accepted`` column saying so) and values that are not
+    finite and positive are left out; None when no window remains. Where a window's
+    ``se / value`` is not finite or not below 1 (a parameter at its bound or fixed),
+    the median of the other windows' stands in (NaN when none is resolved).
+    """
+    needed = {"window_start", "window_end", value, se}
+    if windows is None or not needed <= set(windows.columns) or windows.empty:
+        return None
+    kept = windows
+    if "accepted" in kept.columns:
+        kept = kept[kept["accepted"].astype(bool)]
+    kept = kept[np.isfinite(kept[value].to_numpy(dtype=float))
+                & (kept[value].to_numpy(dtype=float) > 0)]
+    if kept.empty:
+        return None
+    centres = (pd.DatetimeIndex(kept["window_start"]).asi8
+               + pd.DatetimeIndex(kept["window_end"]).asi8) / 2.0
+    kept = kept.iloc[np.argsort(centres, kind="stable")]
+    relative = kept[se].to_numpy(dtype=float) / kept[value].to_numpy(dtype=float)
+    # a value within one standard error of zero is a parameter at its bound: its records'
+    # Reco comes mostly from the neighbouring windows, so se / value (up to 1e4 at a
+    # fitted Rref of 1e-5) would scale their error by a ratio that is not theirs
+    resolved = np.isfinite(relative) & (relative < 1.0)
+    typical = np.median(relative[resolved]) if resolved.any() else np.nan
+    return kept, np.where(resolved, relative, typical)
+
+
 def window_membership(index, windows: pd.DataFrame, value="rref", se="rref_se") -> tuple:
     """Nearest window of each record and the window's relative standard error.
 
@@ -987,29 +1017,13 @@ def window_membership(index, windows: pd.DataFrame, value="rref", se="rref_se") 
         value indistinguishable from zero, i.e. at its bound), the median relative
         standard error of the site's other windows stands in.
     """
-    needed = {"window_start", "window_end", value, se}
     n = len(index)
-    if windows is None or not needed <= set(windows.columns) or windows.empty:
+    retained = _retained_windows(windows, value, se)
+    if retained is None:
         return np.full(n, -1), np.full(n, np.nan)
-    kept = windows
-    if "accepted" in kept.columns:
-        kept = kept[kept["accepted"].astype(bool)]
-    kept = kept[np.isfinite(kept[value].to_numpy(dtype=float))
-                & (kept[value].to_numpy(dtype=float) > 0)]
-    if kept.empty:
-        return np.full(n, -1), np.full(n, np.nan)
-    starts = pd.DatetimeIndex(kept["window_start"]).asi8
-    ends = pd.DatetimeIndex(kept["window_end"]).asi8
-    centres = (starts + ends) / 2.0
-    order = np.argsort(centres, kind="stable")
-    centres = centres[order]
-    relative = (kept[se].to_numpy(dtype=float) / kept[value].to_numpy(dtype=float))[order]
-    # a value within one standard error of zero is a parameter at its bound: its records'
-    # Reco comes mostly from the neighbouring windows, so se / value (up to 1e4 at a
-    # fitted Rref of 1e-5) would scale their error by a ratio that is not theirs
-    resolved = np.isfinite(relative) & (relative < 1.0)
-    typical = np.median(relative[resolved]) if resolved.any() else np.nan
-    relative = np.where(resolved, relative, typical)
+    kept, relative = retained
+    centres = (pd.DatetimeIndex(kept["window_start"]).asi8
+               + pd.DatetimeIndex(kept["window_end"]).asi8) / 2.0
     times = index.asi8.astype(float)
     right = np.clip(np.searchsorted(centres, times), 0, centres.size - 1)
     left = np.clip(right - 1, 0, centres.size - 1)
@@ -1062,28 +1076,16 @@ def interpolation_error(index, windows: pd.DataFrame, value="rref", se="rref_se"
     Ross, S. M. (1996). Stochastic Processes, 2nd ed. Wiley (the Brownian bridge) (m).
     """
     n = len(index)
-    nothing = np.full(n, -1), np.zeros(n), 0.0
-    needed = {"window_start", "window_end", value, se}
-    if windows is None or not needed <= set(windows.columns) or windows.empty:
-        return nothing
-    kept = windows
-    if "accepted" in kept.columns:
-        kept = kept[kept["accepted"].astype(bool)]
-    values = kept[value].to_numpy(dtype=float)
-    kept = kept[np.isfinite(values) & (values > 0)]
-    if len(kept) < 2:
-        return nothing
+    retained = _retained_windows(windows, value, se)
+    if retained is None or len(retained[0]) < 2:
+        return np.full(n, -1), np.zeros(n), 0.0
+    kept, relative = retained
+    relative = np.nan_to_num(relative)          # no window resolved: no error to remove
     origin = pd.Timestamp(index[0])
     day = pd.Timedelta(days=1)
     centres = (((pd.DatetimeIndex(kept["window_start"]) - origin) / day).to_numpy()
                + ((pd.DatetimeIndex(kept["window_end"]) - origin) / day).to_numpy()) / 2.0
-    order = np.argsort(centres, kind="stable")
-    centres = centres[order]
-    log_value = np.log(kept[value].to_numpy(dtype=float)[order])
-    relative = (kept[se].to_numpy(dtype=float) / kept[value].to_numpy(dtype=float))[order]
-    resolved = np.isfinite(relative) & (relative < 1.0)
-    typical = np.median(relative[resolved]) if resolved.any() else 0.0
-    relative = np.where(resolved, relative, typical)
+    log_value = np.log(kept[value].to_numpy(dtype=float))
     spacing = np.diff(centres)
     near = (spacing > 0) & (spacing <= 3.0 * np.median(spacing))
     excess = (np.square(np.diff(log_value)) - np.square(relative[:-1])
