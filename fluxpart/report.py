@@ -310,7 +310,8 @@ def _reading_notes(combined_used: bool) -> str:
         f"{CO2_MOLAR_MASS}/{CARBON_MOLAR_MASS} × 0.01.",
         "The uncertainty covers the parts the run computed and wrote beside each total (the "
         "random error, gap filling with its bias on artificial gaps, the u* threshold, fitted "
-        "parameters and the choice of partitioning method, as far as each applies to the "
+        "parameters (also Rref between its windows) and the choice of partitioning method, as "
+        "far as each applies to the "
         "flux); systematic errors of the measurement itself (energy-balance closure, "
         "advection, storage, footprint) are not included (the manifest lists every part "
         "left out).",
