@@ -1077,7 +1077,7 @@ def interpolation_error(index, windows: pd.DataFrame, value="rref", se="rref_se"
     """
     n = len(index)
     retained = _retained_windows(windows, value, se)
-    if retained is None or len(retained[0]) < 2:
+    if n == 0 or retained is None or len(retained[0]) < 2:
         return np.full(n, -1), np.zeros(n), 0.0
     kept, relative = retained
     relative = np.nan_to_num(relative)          # no window resolved: no error to remove

@@ -636,3 +636,25 @@ def test_interpolation_error_widens_rref_parameters_across_a_long_gap():
                 for i in np.unique(interval))
     assert with_gap.iloc[0] ** 2 == pytest.approx(without.iloc[0] ** 2 + extra, rel=1e-9)
     assert with_gap.iloc[0] > without.iloc[0]
+
+
+def test_interpolation_error_needs_two_windows():
+    """With no record, no window or one window there is nothing to interpolate between:
+    no group (-1), no error, no drift."""
+    from fluxpart.uncertainty import interpolation_error
+
+    windows = pd.DataFrame({"window_start": pd.to_datetime(["2021-01-01", "2021-01-05"]),
+                            "window_end": pd.to_datetime(["2021-01-05", "2021-01-09"]),
+                            "rref": [1.0, 2.0], "rref_se": [0.1, 0.1]})
+    index = pd.date_range("2021-01-01", periods=5, freq="2D")
+    for records, table in ((index[:0], windows), (index, windows.iloc[:1]), (index, None)):
+        interval, spread, drift = interpolation_error(records, table)
+        assert (interval == -1).all() and (spread == 0).all() and drift == 0.0
+        assert len(interval) == len(records)
+    # centres on days 2 and 6 (records every 2 days from day 0): zero at the centres, the
+    # bridge's q * 2 * 2 / 4 halfway, q * 2 beyond the first centre
+    interval, spread, drift = interpolation_error(index, windows)
+    assert list(interval) == [0, 1, 1, 2, 2]
+    assert spread[1] == 0.0 and spread[3] == 0.0
+    assert spread[2] == pytest.approx(np.sqrt(drift), rel=1e-12)
+    assert spread[0] == pytest.approx(np.sqrt(2.0 * drift), rel=1e-12)
