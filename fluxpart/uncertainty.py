@@ -1076,8 +1076,8 @@ def interpolation_error(index, windows: pd.DataFrame, value="rref", se="rref_se"
     Ross, S. M. (1996). Stochastic Processes, 2nd ed. Wiley (the Brownian bridge) (m).
     """
     n = len(index)
-    retained = _retained_windows(windows, value, se)
-    if n == 0 or retained is None or len(retained[0]) < 2:
+    retained = None if n == 0 else _retained_windows(windows, value, se)
+    if retained is None or len(retained[0]) < 2:
         return np.full(n, -1), np.zeros(n), 0.0
     kept, relative = retained
     relative = np.nan_to_num(relative)          # no window resolved: no error to remove
@@ -1505,17 +1505,20 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     day_rref = grouped(inputs.day_window, np.asarray(inputs.day_relative_se) * reco_day)
     day_rref_gpp = grouped(inputs.day_window, np.where(daylight, np.asarray(
         inputs.day_relative_se) * reco_day, 0.0))
-    # Rref interpolated between window centres: a Brownian bridge (interpolation_error)
-    if inputs.night_interval is not None:
-        spread = np.nan_to_num(inputs.night_interpolation_sd) * reco_night
-        night_rref = night_rref + grouped(inputs.night_interval, spread)
-        night_rref_day = night_rref_day + grouped(inputs.night_interval,
-                                                  np.where(night, 0.0, spread))
-    if inputs.day_interval is not None:
-        spread = np.nan_to_num(inputs.day_interpolation_sd) * reco_day
-        day_rref = day_rref + grouped(inputs.day_interval, spread)
-        day_rref_gpp = day_rref_gpp + grouped(inputs.day_interval,
-                                              np.where(daylight, spread, 0.0))
+    def interpolated(interval, relative_sd, reco, within):
+        """Rref interpolated between window centres, a Brownian bridge per stretch
+        (:func:`interpolation_error`): Σ (Σ sd·Reco)² over all records and over `within`."""
+        if interval is None:
+            return 0.0, 0.0
+        spread = np.nan_to_num(relative_sd) * reco
+        return grouped(interval, spread), grouped(interval, np.where(within, spread, 0.0))
+
+    night_bridge, night_bridge_day = interpolated(
+        inputs.night_interval, inputs.night_interpolation_sd, reco_night, ~night)
+    day_bridge, day_bridge_gpp = interpolated(
+        inputs.day_interval, inputs.day_interpolation_sd, reco_day, daylight)
+    night_rref, night_rref_day = night_rref + night_bridge, night_rref_day + night_bridge_day
+    day_rref, day_rref_gpp = day_rref + day_bridge, day_rref_gpp + day_bridge_gpp
     night_known = np.isfinite(inputs.night_relative_se).any()
     day_known = np.isfinite(inputs.day_relative_se).any()
     parameters = {
