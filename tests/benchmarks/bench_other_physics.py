@@ -50,8 +50,7 @@ from bench_generalisation import report, scored  # noqa: E402  (this folder)
 
 from fluxpart import scenarios  # noqa: E402
 from fluxpart.demo import _mark  # noqa: E402
-
-_NIGHT_RG = 10.0   # W m-2, as in fluxpart.scenarios
+from fluxpart.responses import non_rectangular_hyperbola  # noqa: E402
 
 
 def _physics(rng, archetype: str) -> dict:
@@ -73,11 +72,7 @@ def _fluxes(weather, capacity, p, q):
     saturated = (p["beta0"] * q["c4_boost"]
                  * np.exp(-0.5 * ((tair - q["t_optimum"]) / q["t_width"]) ** 2)
                  * np.clip(1.0 - q["vpd_slope"] * (vpd - 10.0), 0.3, 1.0))
-    a_rg, theta = p["alpha"] * rg, q["curvature"]
-    total = a_rg + saturated
-    light = (total - np.sqrt(np.maximum(total**2 - 4.0 * theta * a_rg * saturated, 0.0))) \
-        / (2.0 * theta)
-    gpp = capacity * light
+    gpp = capacity * non_rectangular_hyperbola(rg, p["alpha"], saturated, q["curvature"])
     moisture = weather["moisture"].to_numpy() if p["phenology"] == "wet_season" else 1.0
     r10 = (q["r10_scale"] * p["rref"] * (1.0 + p["rref_phenology"] * (capacity - 0.5))
            * (0.3 + 0.7 * moisture))
@@ -90,7 +85,7 @@ def _measure(rng, weather, gpp, reco, step, p, q):
     n = len(weather)
     per_hour, per_day = 60 // step, 1440 // step
     nee_true = reco - gpp
-    night = weather["rg_true"].to_numpy() < _NIGHT_RG
+    night = weather["rg_true"].to_numpy() < scenarios._NIGHT_RG
     ustar = weather["ustar"].to_numpy()
     threshold = p["ustar_threshold"]
     share = np.where(night & (ustar < threshold), (ustar / threshold) ** q["ustar_exponent"],
