@@ -148,7 +148,8 @@ def test_daily_potential_radiation_matches_fao56_handbook_formulas_in_tropics():
 
 
 def test_fao56_example_8():
-    """3 September at 20 deg S: Ra = 32.2 MJ m-2 d-1 (FAO-56 Example 8 (m)), within 1 %."""
+    """3 September at 20 deg S: Ra = 32.2 MJ m-2 d-1 (Allen et al. 1998, FAO-56, Example 8;
+    recomputed 32.19 from its eqs. 21–25), within 1 %."""
     example = REF["fao56"]["example_8"]
     index = pd.date_range("2021-09-03", periods=48, freq="30min")
     daily = potential_radiation(index, example["latitude"], 0.0, 0.0).sum() * 1800 / 1e6

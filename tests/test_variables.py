@@ -94,7 +94,10 @@ def test_saturation_vapour_pressure_against_handbook():
 
 
 def test_saturation_vapour_pressure_below_freezing_against_wmo():
-    """Over supercooled water, es agrees with the WMO Guide's Magnus form to 0.4 % (m)."""
+    """Over supercooled water, es agrees with the WMO Guide's Magnus form to 0.4 %.
+
+    Source: WMO Guide to Instruments and Methods of Observation (WMO-No. 8), 2008
+    edition, es = 6.112 exp(17.62 t / (243.12 + t)) hPa."""
     wmo = REFERENCE["saturation_vapour_pressure_wmo"]
     t = np.array(wmo["t_celsius"])
     expected = wmo["coefficient_hpa"] * np.exp(wmo["numerator"] * t
