@@ -1157,7 +1157,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     A line with fewer fields than the header is a record cut short, its last value
     possibly cut mid-number ("12.5" written as "1"): as the file's last line (a
     logger stopped mid-write, a power cut) it is dropped with a note in `warnings`;
-    elsewhere it is an error naming the line. A line with more fields is an error.
+    elsewhere it is an error naming the line. A line with more fields is an error, unless
+    the extra fields are empty (a delimiter closing every data line).
     """
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
@@ -1179,8 +1180,10 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                               "is empty" if not text else "holds only blank lines") from None
     except pd.errors.ParserError as error:
         raise InputFileError(_parser_message(path, delimiter, str(error))) from None
+    first_line = rows_before_header + rows_after_header + 2
+    raw = _trailing_fields(path, raw, first_line)
     blank = _blank_rows(raw)
-    lines = np.arange(len(raw)) + rows_before_header + rows_after_header + 2
+    lines = np.arange(len(raw)) + first_line
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
     raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings)
@@ -1192,6 +1195,33 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
     return raw, lines, [str(h).strip() for h in header]
+
+
+def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int) -> pd.DataFrame:
+    """Undo the parser's row index taken from data lines with more fields than the header.
+
+    When the first data line has k fields more than the header, the parser reads the
+    first k fields of every line as a row index and shifts every value one or more
+    columns to the right. Empty extra fields are a delimiter at the end of each data line
+    (a common export): the values are put back under their names. Extra fields that hold
+    values are an error naming the first such line (the header lacks a name).
+    """
+    if isinstance(raw.index, pd.RangeIndex):
+        return raw
+    extra = raw.index.nlevels
+    cells = [raw.index.get_level_values(level).to_numpy(dtype=object)
+             for level in range(extra)] + [raw[column].to_numpy(dtype=object)
+                                            for column in raw.columns]
+    width = len(raw.columns)
+    spare = pd.DataFrame({i: cells[width + i] for i in range(extra)})
+    filled = np.flatnonzero((spare.apply(lambda c: c.str.strip() != "")).any(axis=1))
+    if filled.size:
+        raise InputFileError(
+            f"input file {str(path)!r}: line {int(filled[0]) + first_line} has "
+            f"{width + extra} fields where the header has {width}; {filled.size} such "
+            "line(s) hold values beyond the last named column. Is a column name missing in "
+            "the header, or is [input] delimiter wrong? Correct a copy of the file")
+    return pd.DataFrame(dict(zip(raw.columns, cells[:width], strict=True)))
 
 
 def _blank_rows(raw: pd.DataFrame) -> np.ndarray:
