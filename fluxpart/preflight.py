@@ -62,7 +62,9 @@ _CONSTANT = {
     "rg": ("night mask and daytime light response", True),
     "tair": ("nighttime partitioning (Lloyd–Taylor E0)", True),
     "tsoil": ("nighttime partitioning (Lloyd–Taylor E0)", True),
-    "ustar": ("u* threshold", False),
+    # a constant u* is "detected" as its own value and filters nothing: named apart from the
+    # detector's fall-back findings (which the run reports itself) so the run warns of it
+    "ustar": ("u* filter", False),
     "vpd": ("daytime VPD limitation and gap filling", False),
 }
 _DISTINCT_VALUES = 3          # fewer distinct present values than this is "constant"

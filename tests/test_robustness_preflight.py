@@ -101,3 +101,18 @@ def test_run_error_starts_with_the_night_mask(tmp_path, capsys):
     assert main(["run", str(config), "--out", str(tmp_path / "out"), "--quiet"]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("error: night mask: Rg is at or above")
+
+
+def test_constant_ustar_is_among_the_run_warnings(year):
+    """A u* column stuck at one value (fact of the trade: turbulence never holds u* still)
+    is "detected" as its own threshold and filters nothing; `run` printed no warning, since
+    the run dropped every u* finding of the preflight as one it reports itself."""
+    from fluxpart import FluxpartWarning
+    from fluxpart.pipeline import process
+
+    frame, site, _ = year
+    stuck = frame.assign(ustar=np.where(frame["ustar"].notna(), 0.3, np.nan))
+    with pytest.warns(FluxpartWarning, match="ustar is constant"):
+        result = process(stuck, site)
+    named = [w for w in result.warnings if "ustar is constant" in w]
+    assert len(named) == 1 and named[0].startswith("u* filter:")
