@@ -73,3 +73,22 @@ def test_demo_negative_seed_names_the_option(tmp_path, capsys):
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("error: --seed -1: expected a whole number >= 0")
     assert not (tmp_path / "d").exists()
+
+
+def test_report_and_export_into_an_unwritable_place_are_one_line(written_demo, tmp_path,
+                                                                capsys):
+    """An output below a file (or on a read-only medium, a folder without permission) is one
+    `error:` line naming the place, exit 2; before, the OSError of mkdir or mkstemp left
+    a traceback (exit 1)."""
+    _, folder = written_demo
+    blocker = tmp_path / "notes.txt"
+    blocker.write_text("a file where a folder was expected\n")
+    status = main(["report", str(folder), "--out", str(blocker / "report"), "--quiet"])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert status == 2 and len(err) == 1
+    assert err[0].startswith("error: the report folder") and "notes.txt" in err[0]
+    status = main(["export", str(folder), "--netcdf", str(blocker / "site.nc")])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert status == 2 and len(err) == 1
+    assert err[0].startswith("error: --netcdf") and "notes.txt" in err[0]
+    assert blocker.read_text() == "a file where a folder was expected\n"
