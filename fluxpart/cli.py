@@ -10,7 +10,9 @@ from __future__ import annotations
 import argparse
 import datetime
 import gc
+import signal
 import sys
+import threading
 import warnings
 from pathlib import Path
 
@@ -365,6 +367,19 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
+class _Terminated(BaseException):
+    """SIGTERM (``kill``, a batch scheduler's time limit) raised in the running command.
+
+    A BaseException like KeyboardInterrupt, so that it unwinds the same way: a result
+    folder being staged is removed (:func:`fluxpart.resultdir.write_folder`) instead of
+    being left beside the output folder by a process killed outright.
+    """
+
+
+def _raise_terminated(signum, frame):
+    raise _Terminated
+
+
 def _lazy(module: str, function: str):
     """A handler that imports ``fluxpart.<module>.<function>`` only when its command runs."""
     def handler(args) -> int:
@@ -385,6 +400,9 @@ def main(argv=None) -> int:
     args = _parser().parse_args(argv)
     thresholds = gc.get_threshold()
     gc.set_threshold(*_GC_THRESHOLDS)
+    on_term = None
+    if threading.current_thread() is threading.main_thread():
+        on_term = signal.signal(signal.SIGTERM, _raise_terminated)
     try:
         with warnings.catch_warnings():
             # the commands print a result's warnings themselves, once, in their output
@@ -399,10 +417,16 @@ def main(argv=None) -> int:
         print("error: interrupted (Ctrl-C); an output folder holds its earlier content or "
               "a complete new result, never a mix", file=sys.stderr)
         return 130
+    except _Terminated:
+        print("error: terminated (SIGTERM); an output folder holds its earlier content or a "
+              "complete new result, never a mix", file=sys.stderr)
+        return 128 + signal.SIGTERM
     except BrokenPipeError:          # output piped into e.g. `head`, which closed early
         sys.stderr.close()
         return 0
     finally:
+        if on_term is not None:
+            signal.signal(signal.SIGTERM, on_term)
         gc.set_threshold(*thresholds)
         if argv is None:
             gc.freeze()

@@ -92,3 +92,39 @@ def test_report_and_export_into_an_unwritable_place_are_one_line(written_demo, t
     assert status == 2 and len(err) == 1
     assert err[0].startswith("error: --netcdf") and "notes.txt" in err[0]
     assert blocker.read_text() == "a file where a folder was expected\n"
+
+
+def test_sigterm_while_staging_is_one_line_and_leaves_no_staging(tmp_path):
+    """SIGTERM (`kill PID`, a scheduler's time limit) arriving while a result is staged:
+    exit 143 (128 + SIGTERM, the shell convention) with one `error:` line, and the staging
+    folder removed as on Ctrl-C; before, the process died outright and left
+    `.out.staging-*` beside the folder. Runs in a child process: without the handler
+    the signal ends the process that receives it."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    script = (
+        "import os, signal, time, sys\n"
+        "import pandas as pd\n"
+        "import fluxpart.cli as cli, fluxpart.resultdir as resultdir\n"
+        "def killed(staging, directory):\n"
+        "    os.kill(os.getpid(), signal.SIGTERM)\n"
+        "    time.sleep(5)\n"
+        "resultdir._swap_in = killed\n"
+        "def command(args):\n"
+        "    resultdir.write_folder(args.out, {'annual': pd.DataFrame({'nee': [1.0]})},\n"
+        "                           site={}, config={}, seed=0, provenance={})\n"
+        "    return 0\n"
+        "cli._command_run = command\n"
+        "sys.exit(cli.main(['run', 'site.toml', '--out', sys.argv[1]]))\n")
+    env = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    out = tmp_path / "out"
+    done = subprocess.run([sys.executable, "-c", script, str(out)], env=env, cwd=tmp_path,
+                          capture_output=True, text=True, timeout=120)
+    err = done.stderr.strip().splitlines()
+    assert done.returncode == 143, done.stderr
+    assert len(err) == 1 and err[0].startswith("error: terminated (SIGTERM)")
+    assert not out.exists()
+    assert not any(".staging" in path.name for path in tmp_path.iterdir())
