@@ -734,7 +734,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     accepted = []
     potential = _potential(starts, site, interval_minutes)
     refusals, suspicions = mixup_messages(converted, units, mapping, interval_minutes, potential,
-                                          missing)
+                                          missing, starts)
     warnings.extend(suspicions)
     for name, message in refusals.items():
         accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))

@@ -291,7 +291,26 @@ def _zero_code_message(converted: dict, columns: dict, interval_minutes: int, mi
     return None, f"nee: {found}; if 0 marks missing values, add 0 to [input] missing"
 
 
-def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, potential=None):
+def _reversed_sign(nee: np.ndarray, night: np.ndarray, active: np.ndarray):
+    """(night median, 5th, 95th percentile of warm, bright NEE) where both are backwards.
+
+    None where the records are too few to tell (48 night, :data:`_MIN_ACTIVE_RECORDS`
+    warm and bright) or the sign looks right.
+    """
+    finite = np.isfinite(nee)
+    night_values, active_values = nee[night & finite], nee[active & finite]
+    if night_values.size < 48 or active_values.size < _MIN_ACTIVE_RECORDS:
+        return None
+    night_median = float(np.median(night_values))
+    low, high = (float(v) for v in np.percentile(active_values, [5, 95]))
+    reversed_tails = high > 0.0 and (low >= 0.0 or high > _SIGN_TAIL_RATIO * -low)
+    if not (night_median < 0.0 and reversed_tails):
+        return None
+    return night_median, low, high
+
+
+def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, potential=None,
+                      stamps=None):
     """NEE with the opposite sign (uptake positive, e.g. NEP mapped as ``nee``).
 
     Two facts of the trade decide it together: at night there is no photosynthesis,
@@ -303,8 +322,12 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
     5th percentile), by more than :data:`_SIGN_MIN_RELEASE`, has both backwards.
     Either alone happens on real towers (cold open-path nights or a desert can show
     small negative night medians; a dormant season shows daytime release), so one
-    alone never refuses. Returns (refusal, warning); both None when it cannot tell
-    or finds nothing.
+    alone never refuses. Where the whole record passes, the same rule is applied to
+    each calendar month of `stamps` (the interval starts, optional): months with both
+    backwards beside months without are a sign that changed within the record (a
+    logger program or export changed), warned about with the months named, since a
+    month holds fewer records to tell by. Returns (refusal, warning); both None when
+    it cannot tell or finds nothing.
     """
     nee = converted.get("nee")
     if nee is None:
@@ -319,14 +342,10 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
     if active is None:
         return None, None
     finite = np.isfinite(nee)
-    night_values, active_values = nee[night & finite], nee[active & finite]
-    if night_values.size < 48 or active_values.size < _MIN_ACTIVE_RECORDS:
-        return None, None
-    night_median = float(np.median(night_values))
-    low, high = (float(v) for v in np.percentile(active_values, [5, 95]))
-    reversed_tails = high > 0.0 and (low >= 0.0 or high > _SIGN_TAIL_RATIO * -low)
-    if not (night_median < 0.0 and reversed_tails):
-        return None, None
+    found = _reversed_sign(nee, night, active)
+    if found is None:
+        return None, _nee_sign_by_month(nee, night, active, columns, stamps)
+    night_median, low, high = found
     found = (f"night values have a median of {night_median:.3g} µmol m-2 s-1 (respiration, "
              "a release, is positive) and warm, bright records have 95th and 5th percentiles "
              f"of {high:.3g} and {low:.3g}, a release tail longer than the uptake tail, the "
@@ -338,6 +357,27 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
                 "list nee in [input] accept_units to keep them as they are)"), None
     return None, (f"nee: {found}; if the column has uptake positive (NEP), it needs the "
                   "opposite sign")
+
+
+def _nee_sign_by_month(nee, night, active, columns: dict, stamps) -> str | None:
+    """A warning naming the calendar months whose NEE sign looks reversed, or None."""
+    if stamps is None:
+        return None
+    months = np.asarray(stamps, dtype="datetime64[M]").astype(np.int64) + 1970 * 12
+    backwards = []
+    for month in np.unique(months):
+        rows = months == month
+        found = _reversed_sign(nee[rows], night[rows], active[rows])
+        if found is not None and found[2] > _SIGN_MIN_RELEASE:
+            backwards.append(f"{month // 12}-{month % 12 + 1:02d}")
+    if not backwards:
+        return None
+    return (f"column {columns['nee']!r} (nee): in {len(backwards)} month(s) "
+            f"({', '.join(backwards)}) night values have a negative median and warm, bright "
+            "records a release tail longer than the uptake tail, the reverse of respiration "
+            "and photosynthesis, while the whole record does not: the sign may have changed "
+            "within the record (uptake positive in those months); check them and negate "
+            "them in a copy of the file if so")
 
 
 def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes: int):
@@ -475,7 +515,7 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
 
 
 def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes: int,
-                   potential=None, missing=()) -> tuple[dict, list]:
+                   potential=None, missing=(), stamps=None) -> tuple[dict, list]:
     """Find unit mix-ups that the plausible ranges let through.
 
     Parameters
@@ -494,6 +534,8 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
         Rg check.
     missing : tuple, optional
         Missing-value codes in force (a declared 0 turns the zero-code check off).
+    stamps : pandas.DatetimeIndex, optional
+        Interval starts of the records; enables the month-by-month NEE sign check.
 
     Returns
     -------
@@ -516,7 +558,8 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
             if warn:
                 warnings.append(warn)
         if "nee" not in refusals:
-            refuse, warn = _nee_sign_message(converted, columns, interval_minutes, potential)
+            refuse, warn = _nee_sign_message(converted, columns, interval_minutes, potential,
+                                             stamps)
             if refuse:
                 refusals["nee"] = refuse
             if warn:
