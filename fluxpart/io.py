@@ -443,13 +443,17 @@ def read_input(site_config: SiteConfig) -> tuple[pd.DataFrame, ReadReport]:
     return site_config.read()
 
 
-def read_site_config(path) -> SiteConfig:
+def read_site_config(path, input_paths=None) -> SiteConfig:
     """Parse and validate the ``[site]`` and ``[input]`` tables of a site TOML.
 
     Parameters
     ----------
     path : str or path-like
         The site config file.
+    input_paths : sequence of path-like, optional
+        The input files, replacing those that ``[input] path`` names or matches
+        (``fluxpart verify`` with moved inputs, or a config rebuilt from the copy in a
+        manifest, whose glob would match nothing beside the copy).
 
     Returns
     -------
@@ -494,7 +498,10 @@ def read_site_config(path) -> SiteConfig:
                 longitude=site_table["longitude"], utc_offset=site_table["utc_offset"],
                 canopy=site_table.get("canopy", "tall"))
 
-    input_paths = _resolve_paths(input_table["path"], path.parent)
+    if input_paths is None:
+        input_paths = _resolve_paths(input_table["path"], path.parent)
+    else:
+        input_paths = tuple(Path(p) for p in input_paths)
     time_column = _check_time_column(input_table["time_column"])
     if not isinstance(input_table["time_format"], str) or not input_table["time_format"]:
         raise ConfigError(f"[input] time_format = {setting_text(input_table['time_format'])}: expected a "
