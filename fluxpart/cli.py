@@ -288,8 +288,20 @@ def _command_check(args) -> int:
     return 1 if (problems or report.warnings) else 0
 
 
+class _Parser(argparse.ArgumentParser):
+    """argparse with a usage mistake as one ``error:`` line (exit 2), like every user error.
+
+    argparse's own form is the usage block and then ``PROG: error: ...``; the help
+    stays one option away. The sub-command parsers are of this class too
+    (``add_subparsers`` makes them with the parent's class).
+    """
+
+    def error(self, message):
+        self.exit(2, f"error: {self.prog}: {message} (see {self.prog} --help)\n")
+
+
 def _parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
+    parser = _Parser(
         prog="fluxpart",
         description="Carbon budgets from eddy-covariance flux-tower records.")
     parser.add_argument("--version", action="version", version=f"%(prog)s {__version__}")

@@ -128,3 +128,20 @@ def test_sigterm_while_staging_is_one_line_and_leaves_no_staging(tmp_path):
     assert len(err) == 1 and err[0].startswith("error: terminated (SIGTERM)")
     assert not out.exists()
     assert not any(".staging" in path.name for path in tmp_path.iterdir())
+
+
+def test_usage_mistakes_are_one_error_line(capsys):
+    """A missing argument, an unknown command or option, a bad option value: one `error:`
+    line naming the command and the mistake, exit 2 (before: argparse's usage block and a
+    'fluxpart run: error: ...' line)."""
+    import pytest
+
+    for argv, said in ((["run"], "fluxpart run: the following arguments are required: config"),
+                       (["frobnicate"], "invalid choice: 'frobnicate'"),
+                       (["demo", "--seed", "x"], "fluxpart demo: argument --seed"),
+                       (["verify", "out", "--fast"], "unrecognized arguments: --fast")):
+        with pytest.raises(SystemExit) as stop:
+            main(argv)
+        err = capsys.readouterr().err.strip().splitlines()
+        assert stop.value.code == 2
+        assert len(err) == 1 and err[0].startswith("error: ") and said in err[0], err
