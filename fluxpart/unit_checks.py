@@ -344,7 +344,12 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
     finite = np.isfinite(nee)
     found = _reversed_sign(nee, night, active)
     if found is None:
-        return None, _nee_sign_by_month(nee, night, active, columns, stamps)
+        months = _months_refused(
+            lambda part, sun: _nee_sign_message(part, columns, interval_minutes, sun)[0],
+            converted, potential, stamps)
+        return None, (_changed_within("nee", columns["nee"], months, "NEE with the opposite "
+                                      "sign (negative night median, uptake tail shorter than "
+                                      "the release tail)") if months else None)
     night_median, low, high = found
     found = (f"night values have a median of {night_median:.3g} µmol m-2 s-1 (respiration, "
              "a release, is positive) and warm, bright records have 95th and 5th percentiles "
@@ -359,25 +364,30 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
                   "opposite sign")
 
 
-def _nee_sign_by_month(nee, night, active, columns: dict, stamps) -> str | None:
-    """A warning naming the calendar months whose NEE sign looks reversed, or None."""
+def _months_refused(check, converted: dict, potential, stamps) -> list:
+    """Calendar months ("YYYY-MM") whose records alone `check` refuses.
+
+    `check(converted, potential)` is a whole-record mix-up check returning a refusal
+    (text) or None; it sees each month's slice of `converted` and `potential`.
+    """
     if stamps is None:
-        return None
-    months = np.asarray(stamps, dtype="datetime64[M]").astype(np.int64) + 1970 * 12
-    backwards = []
+        return []
+    months = np.asarray(stamps, dtype="datetime64[M]")
+    found = []
     for month in np.unique(months):
         rows = months == month
-        found = _reversed_sign(nee[rows], night[rows], active[rows])
-        if found is not None and found[2] > _SIGN_MIN_RELEASE:
-            backwards.append(f"{month // 12}-{month % 12 + 1:02d}")
-    if not backwards:
-        return None
-    return (f"column {columns['nee']!r} (nee): in {len(backwards)} month(s) "
-            f"({', '.join(backwards)}) night values have a negative median and warm, bright "
-            "records a release tail longer than the uptake tail, the reverse of respiration "
-            "and photosynthesis, while the whole record does not: the sign may have changed "
-            "within the record (uptake positive in those months); check them and negate "
-            "them in a copy of the file if so")
+        part = {name: values[rows] for name, values in converted.items()}
+        if check(part, None if potential is None else np.asarray(potential)[rows]):
+            found.append(str(month))
+    return found
+
+
+def _changed_within(name: str, column: str, months: list, what: str) -> str:
+    """The warning for a mix-up found in some months only."""
+    return (f"column {column!r} ({name}): in {len(months)} month(s) ({', '.join(months)}) "
+            f"the values alone look like {what}, while the whole record does not: the unit, "
+            "sign or sensor may have changed within the record; check those months and "
+            "correct them in a copy of the file")
 
 
 def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes: int):
@@ -557,6 +567,12 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 refusals["nee"] = refuse
             if warn:
                 warnings.append(warn)
+            months = [] if refuse else _months_refused(
+                lambda part, sun: _nee_message(part, units, columns, interval_minutes, sun)[0],
+                converted, potential, stamps)
+            if months:
+                warnings.append(_changed_within("nee", columns["nee"], months, "a flux 22.7 "
+                                                "times too small (mg CO2 m-2 s-1)"))
         if "nee" not in refusals:
             refuse, warn = _nee_sign_message(converted, columns, interval_minutes, potential,
                                              stamps)
@@ -576,4 +592,12 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
         refuse = _rg_message(converted, units, columns, interval_minutes, potential)
         if refuse:
             refusals["rg"] = refuse
+        else:
+            months = _months_refused(
+                lambda part, sun: _rg_message(part, units, columns, interval_minutes, sun),
+                converted, potential, stamps)
+            if months:
+                warnings.append(_changed_within("rg", columns["rg"], months, "another unit "
+                                                "or quantity (kW m-2, MJ m-2, PPFD or net "
+                                                "radiation)"))
     return refusals, warnings
