@@ -128,8 +128,7 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
     median = float(np.median(present))
     share = outside.mean()
     median_outside = bool(_outside(name, np.array([median]))[0])
-    fraction_rh = name == "rh" and unit in (None, "%") and present.size >= 48 \
-        and np.max(present) <= 1.05
+    fraction_rh = name == "rh" and unit in (None, "%") and _rh_fraction(present)
     mostly_outside = share > IMPLAUSIBLE_SHARE and outside.sum() >= _IMPLAUSIBLE_MIN_COUNT
     if fraction_rh:
         return (f"column {column!r} (rh, read as '%'): all {present.size} values are at most "
@@ -159,6 +158,12 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
     return message + ("; check the column mapping and [input.units]; if these are "
                       "instrument faults, mark them with a missing code (or the site flag) "
                       f"in a copy of the file, or list {name} in [input] accept_units")
+
+
+def _rh_fraction(rh: np.ndarray) -> bool:
+    """True where at least 48 present RH values [%] never exceed 1.05: a fraction."""
+    present = rh[np.isfinite(rh)]
+    return present.size >= 48 and float(np.max(present)) <= 1.05
 
 
 def _better_units(name: str, raw_present: np.ndarray, declared) -> list:
@@ -589,6 +594,14 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 refusals["vpd"] = refuse
             if warn:
                 warnings.append(warn)
+        rh = converted.get("rh")
+        if rh is not None and units.get("rh") in (None, "%") and not _rh_fraction(rh):
+            months = _months_refused(lambda part, sun: _rh_fraction(part["rh"]), converted,
+                                     potential, stamps)
+            if months:
+                warnings.append(_changed_within("rh", columns["rh"], months, "a fraction (all "
+                                                "at most 1.05 %, which no surface air stays "
+                                                "below for a month)"))
         refuse = _rg_message(converted, units, columns, interval_minutes, potential)
         if refuse:
             refusals["rg"] = refuse

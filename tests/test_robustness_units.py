@@ -119,6 +119,7 @@ def test_fahrenheit_air_temperature_of_a_cool_site_refused(seed):
 @pytest.mark.parametrize(("variable", "factor", "what"), [
     ("rg", 1e-3, "kW m-2"),          # a pyranometer logged in kW m-2 from July on
     ("nee", 1.0 / 22.7, "mg CO2"),   # a flux exported in mg CO2 m-2 s-1 from July on
+    ("rh", 0.01, "fraction"),         # relative humidity logged as a fraction from July on
 ])
 def test_unit_changed_for_a_season_is_warned_with_its_months(variable, factor, what):
     """A unit that changes within the record (a logger program or export changed in July,
@@ -134,7 +135,7 @@ def test_unit_changed_for_a_season_is_warned_with_its_months(variable, factor, w
     year = scenarios.generate(0)
     frame = year.frame
     minutes = int((frame.index[1] - frame.index[0]).total_seconds() // 60)
-    names = ("nee", "rg", "tair", "vpd")
+    names = ("nee", "rg", "tair", "vpd", "rh")
     converted = {n: frame[n].to_numpy(float) for n in names}
     potential = _potential(frame.index, year.site, minutes)
     columns = {n: n for n in names}
