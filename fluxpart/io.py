@@ -1114,7 +1114,10 @@ def _file_sha256(path: Path) -> str:
 def _decode(path: Path, encoding) -> tuple[str, str]:
     """Return the file's text and the encoding used (detected if `encoding` is None)."""
     if not path.exists():
-        raise InputFileError(f"[input] path: input file {str(path)!r} does not exist")
+        hint = ("; write the path with forward slashes ('/'), which work on every system: "
+                "a backslash is part of the file name outside Windows" if "\\" in str(path)
+                else "")
+        raise InputFileError(f"[input] path: input file {str(path)!r} does not exist{hint}")
     if not path.is_file():
         raise InputFileError(f"[input] path: {str(path)!r} is not a file")
     try:

@@ -200,3 +200,20 @@ def test_delimiter_closing_every_data_line_reads_like_plain(example, tmp_path, c
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "extra.csv" in line and "line 41 has 10 fields where the header has 9" in line
+
+
+def test_windows_backslash_path_gets_the_forward_slash_hint(example, tmp_path, capsys):
+    """`path = 'data\\tower.csv'` (a config written on Windows) names a file called
+    'data\\tower.csv' on POSIX systems, where the backslash is an ordinary character of a
+    file name (POSIX.1 path resolution); the error says to write '/'."""
+    (tmp_path / "data").mkdir()
+    (tmp_path / "data" / "tower.csv").write_bytes(example.with_suffix(".csv").read_bytes())
+    config = tmp_path / "site.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', "path = 'data\\tower.csv'"), encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "[input] path" in line and "forward slashes" in line
+    config.write_text(config.read_text(encoding="utf-8").replace(
+        "path = 'data\\tower.csv'", 'path = "data/tower.csv"'), encoding="utf-8")
+    assert main(["check", str(config)]) == 0
