@@ -10,6 +10,7 @@ from __future__ import annotations
 import argparse
 import datetime
 import gc
+import os
 import signal
 import sys
 import threading
@@ -392,6 +393,47 @@ def _raise_terminated(signum, frame):
     raise _Terminated
 
 
+class _QuietWhenClosed:
+    """Standard output that goes quiet once its reader has gone (``| head`` closed early).
+
+    The command then runs to its end and exits with its own status (``check`` 1 on
+    problems, ``verify`` 1 when not reproduced) instead of stopping at the first
+    write with status 0. Once the pipe is found closed, standard output is pointed at
+    the null device, so the interpreter's last flush at exit fails no more.
+    """
+
+    def __init__(self, stream):
+        self._stream = stream
+        self._closed = False
+
+    def write(self, text):
+        if not self._closed:
+            try:
+                return self._stream.write(text)
+            except BrokenPipeError:
+                self._quiet()
+        return len(text)
+
+    def flush(self):
+        if not self._closed:
+            try:
+                self._stream.flush()
+            except BrokenPipeError:
+                self._quiet()
+
+    def _quiet(self):
+        self._closed = True
+        try:
+            null = os.open(os.devnull, os.O_WRONLY)
+            os.dup2(null, self._stream.fileno())
+            os.close(null)
+        except (OSError, ValueError, AttributeError):   # no file descriptor (a test capture)
+            pass
+
+    def __getattr__(self, name):
+        return getattr(self._stream, name)
+
+
 def _lazy(module: str, function: str):
     """A handler that imports ``fluxpart.<module>.<function>`` only when its command runs."""
     def handler(args) -> int:
@@ -415,6 +457,8 @@ def main(argv=None) -> int:
     on_term = None
     if threading.current_thread() is threading.main_thread():
         on_term = signal.signal(signal.SIGTERM, _raise_terminated)
+    stdout = sys.stdout
+    sys.stdout = _QuietWhenClosed(stdout)
     try:
         with warnings.catch_warnings():
             # the commands print a result's warnings themselves, once, in their output
@@ -437,6 +481,7 @@ def main(argv=None) -> int:
         sys.stderr.close()
         return 0
     finally:
+        sys.stdout = stdout
         if on_term is not None:
             signal.signal(signal.SIGTERM, on_term)
         gc.set_threshold(*thresholds)

@@ -145,3 +145,26 @@ def test_usage_mistakes_are_one_error_line(capsys):
         err = capsys.readouterr().err.strip().splitlines()
         assert stop.value.code == 2
         assert len(err) == 1 and err[0].startswith("error: ") and said in err[0], err
+
+
+def test_status_survives_a_reader_that_closes_early(tmp_path):
+    """`fluxpart check SITE | head -1`: the reader closes the pipe, the next write fails
+    (EPIPE, POSIX write(2)). The command still exits with its own status (1: a problem
+    listed) and prints no traceback; before, it stopped at that write with status 0.
+    The pipe is closed before the command writes anything, so the test does not race."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    from fluxpart.demo import write_example
+
+    config = write_example(tmp_path)
+    config.write_text(config.read_text().replace("latitude = 49.3", "latitude = -49.3"))
+    env = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    child = subprocess.Popen([sys.executable, "-m", "fluxpart", "check", str(config)],
+                             env=env, stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+    child.stdout.close()
+    err = child.stderr.read().decode()
+    assert child.wait(timeout=300) == 1, err
+    assert "Traceback" not in err and "Exception ignored" not in err
