@@ -514,6 +514,10 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
     # hundreds; kW m-2 or MJ m-2 per interval show numbers below about 5.
     if not (np.percentile(values, 90) < 5.0 and np.percentile(values, 90) > 0.05):
         return None
+    # ... and at every hour: W m-2 small only at the hours the settings call bright (high
+    # at others) is a clock or site position hours off, which the clock check names
+    if np.percentile(rg[np.isfinite(rg)], 99) >= 5.0:
+        return None
     ratio_kw = float(np.percentile(values * 1000.0 / np.asarray(potential)[bright], 90))
     per_interval = 1e6 / (interval_minutes * 60.0)
     ratio_mj = ratio_kw * per_interval / 1000.0

@@ -152,3 +152,26 @@ def test_unit_changed_for_a_season_is_warned_with_its_months(variable, factor, w
     months = re.findall(r"\d{4}-\d{2}", named[0])
     assert months and all(f"{year.scenario.year}-07" <= m <= f"{year.scenario.year}-09"
                           for m in months)
+
+
+def test_clock_hours_off_is_not_called_an_rg_unit():
+    """Rg in W m-2 with the site's clock 12 h off (utc_offset mistyped): at the hours the
+    settings call bright it is night, so 90 % of those values are near 0, as kW m-2 would
+    be. But kW m-2 or MJ per interval stay below about 5 at every hour (1 kW m-2 =
+    1000 W m-2, SI), while these reach hundreds: no Rg unit is named (the clock check
+    names the offset); before, months of the record were called another unit."""
+    from fluxpart import scenarios
+    from fluxpart.io import _potential
+    from fluxpart.site import Site
+
+    year = scenarios.generate(0)
+    frame, site = year.frame, year.site
+    minutes = int((frame.index[1] - frame.index[0]).total_seconds() // 60)
+    wrong = Site(site.name, site.latitude, site.longitude, site.utc_offset + 12.0
+                 if site.utc_offset <= 2.0 else site.utc_offset - 12.0)
+    names = ("nee", "rg", "tair", "vpd")
+    converted = {n: frame[n].to_numpy(float) for n in names}
+    refusals, warnings = mixup_messages(converted, {}, {n: n for n in names}, minutes,
+                                        _potential(frame.index, wrong, minutes), (),
+                                        frame.index)
+    assert "rg" not in refusals and not any("'rg' (rg)" in w for w in warnings), warnings
