@@ -202,3 +202,6 @@ def test_literal_z_in_the_format_is_utc():
     assert expected[0] == datetime(2021, 7, 1, 12, 0) and stamps.offset_converted == 4
     assert list(parse_stamps(text, "%Y-%m-%dT%H:%M:%S%z", **options).stamps) == \
         list(stamps.stamps)
+    # the same file with time_zone = "UTC" (the other documented way) reads the same
+    assert list(parse_stamps(text, "%Y-%m-%dT%H:%M:%SZ", **options, time_zone="UTC").stamps) \
+        == list(stamps.stamps)
