@@ -1304,13 +1304,19 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
     return raw.iloc[:last].reset_index(drop=True), lines[:last]
 
 
-def _check_header_line(raw: pd.DataFrame, text: str, delimiter: str, time_columns: tuple,
+def _check_header_line(text: str, delimiter: str, time_columns: tuple,
                        rows_before_header: int, path: Path) -> None:
-    """Raise with the right ``rows_before_header`` when the header is on another line."""
-    if time_columns[0] in raw.columns:
-        return
+    """Raise with the right ``rows_before_header`` when the header is on another line.
+
+    Run on the text before the parser, whose complaints about a title line read as the
+    header (too few names for the data lines) would hide the setting that fixes them.
+    """
     separator = None if delimiter == _WHITESPACE else delimiter
-    for number, line in enumerate(text.splitlines()[:50]):
+    lines = text.splitlines()[:50]
+    if rows_before_header < len(lines) and time_columns[0] in [
+            cell.strip().strip('"') for cell in lines[rows_before_header].split(separator)]:
+        return
+    for number, line in enumerate(lines):
         cells = [cell.strip().strip('"') for cell in line.split(separator)]
         if number != rows_before_header and time_columns[0] in cells:
             raise MissingColumnError(
@@ -1328,9 +1334,9 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                utc_offset, warnings) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column."""
     text, used_encoding = _decode(path, encoding)
+    _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     raw, lines, header = _read_text(path, text, delimiter, rows_before_header,
                                     rows_after_header, warnings)
-    _check_header_line(raw, text, delimiter, time_columns, rows_before_header, path)
     mapping, flag_columns = _resolve_columns(columns, units, list(raw.columns), header,
                                              time_columns, flag_columns, path)
     source = str(path)
