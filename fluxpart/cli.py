@@ -10,7 +10,10 @@ from __future__ import annotations
 import argparse
 import datetime
 import gc
+import os
+import signal
 import sys
+import threading
 import warnings
 from pathlib import Path
 
@@ -286,8 +289,20 @@ def _command_check(args) -> int:
     return 1 if (problems or report.warnings) else 0
 
 
+class _Parser(argparse.ArgumentParser):
+    """argparse with a usage mistake as one ``error:`` line (exit 2), like every user error.
+
+    argparse's own form is the usage block and then ``PROG: error: ...``; the help
+    stays one option away. The sub-command parsers are of this class too
+    (``add_subparsers`` makes them with the parent's class).
+    """
+
+    def error(self, message):
+        self.exit(2, f"error: {self.prog}: {message} (see {self.prog} --help)\n")
+
+
 def _parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
+    parser = _Parser(
         prog="fluxpart",
         description="Carbon budgets from eddy-covariance flux-tower records.")
     parser.add_argument("--version", action="version", version=f"%(prog)s {__version__}")
@@ -365,6 +380,60 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
+class _Terminated(BaseException):
+    """SIGTERM (``kill``, a batch scheduler's time limit) raised in the running command.
+
+    A BaseException like KeyboardInterrupt, so that it unwinds the same way: a result
+    folder being staged is removed (:func:`fluxpart.resultdir.write_folder`) instead of
+    being left beside the output folder by a process killed outright.
+    """
+
+
+def _raise_terminated(signum, frame):
+    raise _Terminated
+
+
+class _QuietWhenClosed:
+    """Standard output that goes quiet once its reader has gone (``| head`` closed early).
+
+    The command then runs to its end and exits with its own status (``check`` 1 on
+    problems, ``verify`` 1 when not reproduced) instead of stopping at the first
+    write with status 0. Once the pipe is found closed, standard output is pointed at
+    the null device, so the interpreter's last flush at exit fails no more.
+    """
+
+    def __init__(self, stream):
+        self._stream = stream
+        self._closed = False
+
+    def write(self, text):
+        if not self._closed:
+            try:
+                return self._stream.write(text)
+            except BrokenPipeError:
+                self._quiet()
+        return len(text)
+
+    def flush(self):
+        if not self._closed:
+            try:
+                self._stream.flush()
+            except BrokenPipeError:
+                self._quiet()
+
+    def _quiet(self):
+        self._closed = True
+        try:
+            null = os.open(os.devnull, os.O_WRONLY)
+            os.dup2(null, self._stream.fileno())
+            os.close(null)
+        except (OSError, ValueError, AttributeError):   # no file descriptor (a test capture)
+            pass
+
+    def __getattr__(self, name):
+        return getattr(self._stream, name)
+
+
 def _lazy(module: str, function: str):
     """A handler that imports ``fluxpart.<module>.<function>`` only when its command runs."""
     def handler(args) -> int:
@@ -385,6 +454,11 @@ def main(argv=None) -> int:
     args = _parser().parse_args(argv)
     thresholds = gc.get_threshold()
     gc.set_threshold(*_GC_THRESHOLDS)
+    on_term = None
+    if threading.current_thread() is threading.main_thread():
+        on_term = signal.signal(signal.SIGTERM, _raise_terminated)
+    stdout = sys.stdout
+    sys.stdout = _QuietWhenClosed(stdout)
     try:
         with warnings.catch_warnings():
             # the commands print a result's warnings themselves, once, in their output
@@ -399,10 +473,17 @@ def main(argv=None) -> int:
         print("error: interrupted (Ctrl-C); an output folder holds its earlier content or "
               "a complete new result, never a mix", file=sys.stderr)
         return 130
+    except _Terminated:
+        print("error: terminated (SIGTERM); an output folder holds its earlier content or a "
+              "complete new result, never a mix", file=sys.stderr)
+        return 128 + signal.SIGTERM
     except BrokenPipeError:          # output piped into e.g. `head`, which closed early
         sys.stderr.close()
         return 0
     finally:
+        sys.stdout = stdout
+        if on_term is not None:
+            signal.signal(signal.SIGTERM, on_term)
         gc.set_threshold(*thresholds)
         if argv is None:
             gc.freeze()

@@ -321,8 +321,13 @@ def write_netcdf(result, path) -> Path:
                           "file to write, e.g. result.nc")
     dataset = to_xarray(result)
     engine = _engine()
-    path.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp",
+                                             dir=path.parent)
+    except OSError as error:        # a read-only medium, no permission, a file in the path
+        raise OutputError(f"--netcdf {str(path)!r}: cannot write in {str(path.parent)!r} "
+                          f"({error.strerror or error}); choose a writable place") from None
     os.close(handle)
     try:
         dataset.to_netcdf(temporary, engine=engine, format="NETCDF4")

@@ -443,13 +443,17 @@ def read_input(site_config: SiteConfig) -> tuple[pd.DataFrame, ReadReport]:
     return site_config.read()
 
 
-def read_site_config(path) -> SiteConfig:
+def read_site_config(path, input_paths=None) -> SiteConfig:
     """Parse and validate the ``[site]`` and ``[input]`` tables of a site TOML.
 
     Parameters
     ----------
     path : str or path-like
         The site config file.
+    input_paths : sequence of path-like, optional
+        The input files, replacing those that ``[input] path`` names or matches
+        (``fluxpart verify`` with moved inputs, or a config rebuilt from the copy in a
+        manifest, whose glob would match nothing beside the copy).
 
     Returns
     -------
@@ -494,7 +498,10 @@ def read_site_config(path) -> SiteConfig:
                 longitude=site_table["longitude"], utc_offset=site_table["utc_offset"],
                 canopy=site_table.get("canopy", "tall"))
 
-    input_paths = _resolve_paths(input_table["path"], path.parent)
+    if input_paths is None:
+        input_paths = _resolve_paths(input_table["path"], path.parent)
+    else:
+        input_paths = tuple(Path(p) for p in input_paths)
     time_column = _check_time_column(input_table["time_column"])
     if not isinstance(input_table["time_format"], str) or not input_table["time_format"]:
         raise ConfigError(f"[input] time_format = {setting_text(input_table['time_format'])}: expected a "
@@ -734,7 +741,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     accepted = []
     potential = _potential(starts, site, interval_minutes)
     refusals, suspicions = mixup_messages(converted, units, mapping, interval_minutes, potential,
-                                          missing)
+                                          missing, starts)
     warnings.extend(suspicions)
     for name, message in refusals.items():
         accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
@@ -1107,7 +1114,10 @@ def _file_sha256(path: Path) -> str:
 def _decode(path: Path, encoding) -> tuple[str, str]:
     """Return the file's text and the encoding used (detected if `encoding` is None)."""
     if not path.exists():
-        raise InputFileError(f"[input] path: input file {str(path)!r} does not exist")
+        hint = ("; write the path with forward slashes ('/'), which work on every system: "
+                "a backslash is part of the file name outside Windows" if "\\" in str(path)
+                else "")
+        raise InputFileError(f"[input] path: input file {str(path)!r} does not exist{hint}")
     if not path.is_file():
         raise InputFileError(f"[input] path: {str(path)!r} is not a file")
     try:
@@ -1157,7 +1167,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     A line with fewer fields than the header is a record cut short, its last value
     possibly cut mid-number ("12.5" written as "1"): as the file's last line (a
     logger stopped mid-write, a power cut) it is dropped with a note in `warnings`;
-    elsewhere it is an error naming the line. A line with more fields is an error.
+    elsewhere it is an error naming the line. A line with more fields is an error, unless
+    the extra fields are empty (a delimiter closing every data line).
     """
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
@@ -1179,8 +1190,10 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                               "is empty" if not text else "holds only blank lines") from None
     except pd.errors.ParserError as error:
         raise InputFileError(_parser_message(path, delimiter, str(error))) from None
+    first_line = rows_before_header + rows_after_header + 2
+    raw = _trailing_fields(path, raw, first_line)
     blank = _blank_rows(raw)
-    lines = np.arange(len(raw)) + rows_before_header + rows_after_header + 2
+    lines = np.arange(len(raw)) + first_line
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
     raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings)
@@ -1192,6 +1205,33 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
     return raw, lines, [str(h).strip() for h in header]
+
+
+def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int) -> pd.DataFrame:
+    """Undo the parser's row index taken from data lines with more fields than the header.
+
+    When the first data line has k fields more than the header, the parser reads the
+    first k fields of every line as a row index and shifts every value one or more
+    columns to the right. Empty extra fields are a delimiter at the end of each data line
+    (a common export): the values are put back under their names. Extra fields that hold
+    values are an error naming the first such line (the header lacks a name).
+    """
+    if isinstance(raw.index, pd.RangeIndex):
+        return raw
+    extra = raw.index.nlevels
+    cells = [raw.index.get_level_values(level).to_numpy(dtype=object)
+             for level in range(extra)] + [raw[column].to_numpy(dtype=object)
+                                            for column in raw.columns]
+    width = len(raw.columns)
+    spare = pd.DataFrame({i: cells[width + i] for i in range(extra)})
+    filled = np.flatnonzero((spare.apply(lambda c: c.str.strip() != "")).any(axis=1))
+    if filled.size:
+        raise InputFileError(
+            f"input file {str(path)!r}: line {int(filled[0]) + first_line} has "
+            f"{width + extra} fields where the header has {width}; {filled.size} such "
+            "line(s) hold values beyond the last named column. Is a column name missing in "
+            "the header, or is [input] delimiter wrong? Correct a copy of the file")
+    return pd.DataFrame(dict(zip(raw.columns, cells[:width], strict=True)))
 
 
 def _blank_rows(raw: pd.DataFrame) -> np.ndarray:
@@ -1264,13 +1304,19 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
     return raw.iloc[:last].reset_index(drop=True), lines[:last]
 
 
-def _check_header_line(raw: pd.DataFrame, text: str, delimiter: str, time_columns: tuple,
+def _check_header_line(text: str, delimiter: str, time_columns: tuple,
                        rows_before_header: int, path: Path) -> None:
-    """Raise with the right ``rows_before_header`` when the header is on another line."""
-    if time_columns[0] in raw.columns:
-        return
+    """Raise with the right ``rows_before_header`` when the header is on another line.
+
+    Run on the text before the parser, whose complaints about a title line read as the
+    header (too few names for the data lines) would hide the setting that fixes them.
+    """
     separator = None if delimiter == _WHITESPACE else delimiter
-    for number, line in enumerate(text.splitlines()[:50]):
+    lines = text.splitlines()[:50]
+    if rows_before_header < len(lines) and time_columns[0] in [
+            cell.strip().strip('"') for cell in lines[rows_before_header].split(separator)]:
+        return
+    for number, line in enumerate(lines):
         cells = [cell.strip().strip('"') for cell in line.split(separator)]
         if number != rows_before_header and time_columns[0] in cells:
             raise MissingColumnError(
@@ -1288,9 +1334,9 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                utc_offset, warnings) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column."""
     text, used_encoding = _decode(path, encoding)
+    _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     raw, lines, header = _read_text(path, text, delimiter, rows_before_header,
                                     rows_after_header, warnings)
-    _check_header_line(raw, text, delimiter, time_columns, rows_before_header, path)
     mapping, flag_columns = _resolve_columns(columns, units, list(raw.columns), header,
                                              time_columns, flag_columns, path)
     source = str(path)

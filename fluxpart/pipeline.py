@@ -871,16 +871,13 @@ def process_site_config(path, config: Config | None = None, *, progress=None,
     files), when given, replaces the config's ``[input] path`` (an auditor's
     moved copy of the input).
     """
-    import dataclasses
     import hashlib
 
     from .io import read_site_config
 
-    site_config = read_site_config(path)
-    if input_path is not None:
-        given = input_path if isinstance(input_path, (list, tuple)) else [input_path]
-        site_config = dataclasses.replace(site_config,
-                                          input_paths=tuple(Path(p) for p in given))
+    given = None if input_path is None else (
+        input_path if isinstance(input_path, (list, tuple)) else [input_path])
+    site_config = read_site_config(path, input_paths=given)
     config_bytes = Path(path).read_bytes()
     frame, report = site_config.read()
     from_file = Config.from_toml(path)

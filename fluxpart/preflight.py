@@ -32,6 +32,8 @@ many Rg records above potential           screening (clock evidence)          no
 radiation
 a variable repeating one value for days   input (stuck sensor)                no
 (Rg: with the sun up)
+a gap of measured NEE longer than the     gap filling (quality C only)        no
+largest quality-A window (28 days)
 Rg above the night threshold in most      night mask                          where the
 records with the sun down                                                     nighttime
                                                                               stages fail
@@ -45,6 +47,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from .gapfill import _A_ALL_DRIVERS_DAYS
 from .ustar import assign_seasons
 
 __all__ = ["Finding", "RG_ABOVE_POTENTIAL_SHARE", "preflight"]
@@ -62,7 +65,9 @@ _CONSTANT = {
     "rg": ("night mask and daytime light response", True),
     "tair": ("nighttime partitioning (Lloyd–Taylor E0)", True),
     "tsoil": ("nighttime partitioning (Lloyd–Taylor E0)", True),
-    "ustar": ("u* threshold", False),
+    # a constant u* is "detected" as its own value and filters nothing: named apart from the
+    # detector's fall-back findings (which the run reports itself) so the run warns of it
+    "ustar": ("u* filter", False),
     "vpd": ("daytime VPD limitation and gap filling", False),
 }
 _DISTINCT_VALUES = 3          # fewer distinct present values than this is "constant"
@@ -191,6 +196,35 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
             "value) reads like this, and the values would enter as measured; mark them "
             "missing in a copy of the file"), False))
     return findings
+
+
+def _long_gaps(index: pd.DatetimeIndex, nee: np.ndarray, interval_minutes: float) -> list:
+    """Gaps of measured NEE longer than the largest full window of quality A.
+
+    Within such a gap some records have no measured NEE within ±14 days, so the
+    marginal distribution sampling fills them from windows widened up to ±140 days
+    (quality C, Reichstein, gap-filling flow chart, workshop slides 2004): the sums
+    over the gap rest on the fluxes of other weeks or seasons. Without a note a whole
+    month missing reads as a complete year.
+    """
+    missing = ~np.isfinite(nee)
+    if not missing.any() or missing.all():
+        return []
+    edges = np.diff(np.concatenate([[0], missing.astype(np.int8), [0]]))
+    starts, ends = np.flatnonzero(edges == 1), np.flatnonzero(edges == -1)
+    lengths = (ends - starts) * interval_minutes / 1440.0
+    long = np.flatnonzero(lengths > _A_ALL_DRIVERS_DAYS)
+    if long.size == 0:
+        return []
+    longest = long[np.argmax(lengths[long])]
+    first, last = index[starts[longest]], index[ends[longest] - 1]
+    return [Finding("gap filling", (
+        f"{long.size} gap(s) of measured NEE longer than {_A_ALL_DRIVERS_DAYS:g} days "
+        f"({lengths[long].sum():.1f} days in all), the longest {lengths[longest]:.1f} days "
+        f"({first:%Y-%m-%d %H:%M} .. {last:%Y-%m-%d %H:%M}): its middle lies more than "
+        f"{_A_ALL_DRIVERS_DAYS / 2:g} days from any measured NEE and is filled from other "
+        "weeks or seasons (quality C), so sums over it are weak evidence (share_filled_c "
+        "in annual.parquet)"), False)]
 
 
 def _dark_rg(frame: pd.DataFrame, potential, config) -> list:
@@ -373,6 +407,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     with np.errstate(invalid="ignore"):
         sunlit = rg > 0                   # measured sunlight (gaps in Rg count as none)
     findings += _daytime(days, np.isfinite(nee) & ~is_night & sunlit, config)
+    findings += _long_gaps(index, nee, interval_minutes)
     findings += ustar_findings
     if span_days < 365.0:
         findings.append(Finding("annual budget", (

@@ -857,10 +857,14 @@ def build_report(directory, out=None, *, progress=None) -> Path:
     figures = draw_figures(written, tick)
     page = _page(written, directory, figures, interval).encode("utf-8")
     # every byte is ready before the first file is written: a failure leaves no half report
-    for figure in figures:
-        atomic_write_bytes(out / figure.name, figure.png)
     path = out / "report.html"
-    atomic_write_bytes(path, page)
+    try:
+        for figure in figures:
+            atomic_write_bytes(out / figure.name, figure.png)
+        atomic_write_bytes(path, page)
+    except OSError as error:        # a read-only medium, no permission, a full disk
+        raise OutputError(f"the report folder {str(out)!r} cannot be written "
+                          f"({error.strerror or error}); give --out a writable folder") from None
     tick()
     return path
 

@@ -387,12 +387,16 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     Hour 24 (``24:00``, ``2400``) is midnight at the end of the day, i.e. ``00:00``
     of the next day. Stamps carrying a UTC offset (``+02:00``, ``Z``; format
     ``%z`` or ``"ISO8601"``) are converted to UTC and then to local standard time
-    with `utc_offset`. Civil time in `time_zone`: a repeated autumn hour is
+    with `utc_offset`; a format ending in a literal ``Z`` (``"%Y-%m-%dT%H:%M:%SZ"``)
+    declares UTC (ISO 8601) and is read as ``%z``, not as local time (unless a
+    `time_zone`, e.g. ``"UTC"``, says how to read the stamps). Civil time in `time_zone`: a repeated autumn hour is
     resolved by record order (the first occurrence of a stamp in the file is
     daylight-saving time, the second standard time); a stamp occurring only once in
     the repeated hour is read as daylight-saving time. The skipped spring hour
     holds no stamps, so it becomes a gap of inserted records.
     """
+    if time_format.endswith("Z") and not time_format.endswith("%Z") and time_zone is None:
+        time_format = time_format[:-1] + "%z"       # "...%SZ": the Z of UTC, not a letter
     with_offset = _carries_offset(text, time_format)
     if with_offset and time_zone is not None:
         raise TimestampError(f"{_time_setting(time_columns)}: stamps in {source!r} carry a UTC "

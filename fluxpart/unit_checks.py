@@ -128,8 +128,7 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
     median = float(np.median(present))
     share = outside.mean()
     median_outside = bool(_outside(name, np.array([median]))[0])
-    fraction_rh = name == "rh" and unit in (None, "%") and present.size >= 48 \
-        and np.max(present) <= 1.05
+    fraction_rh = name == "rh" and unit in (None, "%") and _rh_fraction(present)
     mostly_outside = share > IMPLAUSIBLE_SHARE and outside.sum() >= _IMPLAUSIBLE_MIN_COUNT
     if fraction_rh:
         return (f"column {column!r} (rh, read as '%'): all {present.size} values are at most "
@@ -159,6 +158,12 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
     return message + ("; check the column mapping and [input.units]; if these are "
                       "instrument faults, mark them with a missing code (or the site flag) "
                       f"in a copy of the file, or list {name} in [input] accept_units")
+
+
+def _rh_fraction(rh: np.ndarray) -> bool:
+    """True where at least 48 present RH values [%] never exceed 1.05: a fraction."""
+    present = rh[np.isfinite(rh)]
+    return present.size >= 48 and float(np.max(present)) <= 1.05
 
 
 def _better_units(name: str, raw_present: np.ndarray, declared) -> list:
@@ -291,7 +296,26 @@ def _zero_code_message(converted: dict, columns: dict, interval_minutes: int, mi
     return None, f"nee: {found}; if 0 marks missing values, add 0 to [input] missing"
 
 
-def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, potential=None):
+def _reversed_sign(nee: np.ndarray, night: np.ndarray, active: np.ndarray):
+    """(night median, 5th, 95th percentile of warm, bright NEE) where both are backwards.
+
+    None where the records are too few to tell (48 night, :data:`_MIN_ACTIVE_RECORDS`
+    warm and bright) or the sign looks right.
+    """
+    finite = np.isfinite(nee)
+    night_values, active_values = nee[night & finite], nee[active & finite]
+    if night_values.size < 48 or active_values.size < _MIN_ACTIVE_RECORDS:
+        return None
+    night_median = float(np.median(night_values))
+    low, high = (float(v) for v in np.percentile(active_values, [5, 95]))
+    reversed_tails = high > 0.0 and (low >= 0.0 or high > _SIGN_TAIL_RATIO * -low)
+    if not (night_median < 0.0 and reversed_tails):
+        return None
+    return night_median, low, high
+
+
+def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, potential=None,
+                      stamps=None):
     """NEE with the opposite sign (uptake positive, e.g. NEP mapped as ``nee``).
 
     Two facts of the trade decide it together: at night there is no photosynthesis,
@@ -303,8 +327,12 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
     5th percentile), by more than :data:`_SIGN_MIN_RELEASE`, has both backwards.
     Either alone happens on real towers (cold open-path nights or a desert can show
     small negative night medians; a dormant season shows daytime release), so one
-    alone never refuses. Returns (refusal, warning); both None when it cannot tell
-    or finds nothing.
+    alone never refuses. Where the whole record passes, the same rule is applied to
+    each calendar month of `stamps` (the interval starts, optional): months with both
+    backwards beside months without are a sign that changed within the record (a
+    logger program or export changed), warned about with the months named, since a
+    month holds fewer records to tell by. Returns (refusal, warning); both None when
+    it cannot tell or finds nothing.
     """
     nee = converted.get("nee")
     if nee is None:
@@ -319,14 +347,15 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
     if active is None:
         return None, None
     finite = np.isfinite(nee)
-    night_values, active_values = nee[night & finite], nee[active & finite]
-    if night_values.size < 48 or active_values.size < _MIN_ACTIVE_RECORDS:
-        return None, None
-    night_median = float(np.median(night_values))
-    low, high = (float(v) for v in np.percentile(active_values, [5, 95]))
-    reversed_tails = high > 0.0 and (low >= 0.0 or high > _SIGN_TAIL_RATIO * -low)
-    if not (night_median < 0.0 and reversed_tails):
-        return None, None
+    found = _reversed_sign(nee, night, active)
+    if found is None:
+        months = _months_refused(
+            lambda part, sun: _nee_sign_message(part, columns, interval_minutes, sun)[0],
+            converted, potential, stamps)
+        return None, (_changed_within("nee", columns["nee"], months, "NEE with the opposite "
+                                      "sign (negative night median, uptake tail shorter than "
+                                      "the release tail)") if months else None)
+    night_median, low, high = found
     found = (f"night values have a median of {night_median:.3g} µmol m-2 s-1 (respiration, "
              "a release, is positive) and warm, bright records have 95th and 5th percentiles "
              f"of {high:.3g} and {low:.3g}, a release tail longer than the uptake tail, the "
@@ -338,6 +367,32 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
                 "list nee in [input] accept_units to keep them as they are)"), None
     return None, (f"nee: {found}; if the column has uptake positive (NEP), it needs the "
                   "opposite sign")
+
+
+def _months_refused(check, converted: dict, potential, stamps) -> list:
+    """Calendar months ("YYYY-MM") whose records alone `check` refuses.
+
+    `check(converted, potential)` is a whole-record mix-up check returning a refusal
+    (text) or None; it sees each month's slice of `converted` and `potential`.
+    """
+    if stamps is None:
+        return []
+    months = np.asarray(stamps, dtype="datetime64[M]")
+    found = []
+    for month in np.unique(months):
+        rows = months == month
+        part = {name: values[rows] for name, values in converted.items()}
+        if check(part, None if potential is None else np.asarray(potential)[rows]):
+            found.append(str(month))
+    return found
+
+
+def _changed_within(name: str, column: str, months: list, what: str) -> str:
+    """The warning for a mix-up found in some months only."""
+    return (f"column {column!r} ({name}): in {len(months)} month(s) ({', '.join(months)}) "
+            f"the values alone look like {what}, while the whole record does not: the unit, "
+            "sign or sensor may have changed within the record; check those months and "
+            "correct them in a copy of the file")
 
 
 def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes: int):
@@ -459,6 +514,10 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
     # hundreds; kW m-2 or MJ m-2 per interval show numbers below about 5.
     if not (np.percentile(values, 90) < 5.0 and np.percentile(values, 90) > 0.05):
         return None
+    # ... and at every hour: W m-2 small only at the hours the settings call bright (high
+    # at others) is a clock or site position hours off, which the clock check names
+    if np.percentile(rg[np.isfinite(rg)], 99) >= 5.0:
+        return None
     ratio_kw = float(np.percentile(values * 1000.0 / np.asarray(potential)[bright], 90))
     per_interval = 1e6 / (interval_minutes * 60.0)
     ratio_mj = ratio_kw * per_interval / 1000.0
@@ -475,7 +534,7 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
 
 
 def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes: int,
-                   potential=None, missing=()) -> tuple[dict, list]:
+                   potential=None, missing=(), stamps=None) -> tuple[dict, list]:
     """Find unit mix-ups that the plausible ranges let through.
 
     Parameters
@@ -494,6 +553,8 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
         Rg check.
     missing : tuple, optional
         Missing-value codes in force (a declared 0 turns the zero-code check off).
+    stamps : pandas.DatetimeIndex, optional
+        Interval starts of the records; enables the month-by-month NEE sign check.
 
     Returns
     -------
@@ -515,8 +576,15 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 refusals["nee"] = refuse
             if warn:
                 warnings.append(warn)
+            months = [] if refuse else _months_refused(
+                lambda part, sun: _nee_message(part, units, columns, interval_minutes, sun)[0],
+                converted, potential, stamps)
+            if months:
+                warnings.append(_changed_within("nee", columns["nee"], months, "a flux 22.7 "
+                                                "times too small (mg CO2 m-2 s-1)"))
         if "nee" not in refusals:
-            refuse, warn = _nee_sign_message(converted, columns, interval_minutes, potential)
+            refuse, warn = _nee_sign_message(converted, columns, interval_minutes, potential,
+                                             stamps)
             if refuse:
                 refusals["nee"] = refuse
             if warn:
@@ -530,7 +598,23 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 refusals["vpd"] = refuse
             if warn:
                 warnings.append(warn)
+        rh = converted.get("rh")
+        if rh is not None and units.get("rh") in (None, "%") and not _rh_fraction(rh):
+            months = _months_refused(lambda part, sun: _rh_fraction(part["rh"]), converted,
+                                     potential, stamps)
+            if months:
+                warnings.append(_changed_within("rh", columns["rh"], months, "a fraction (all "
+                                                "at most 1.05 %, which no surface air stays "
+                                                "below for a month)"))
         refuse = _rg_message(converted, units, columns, interval_minutes, potential)
         if refuse:
             refusals["rg"] = refuse
+        else:
+            months = _months_refused(
+                lambda part, sun: _rg_message(part, units, columns, interval_minutes, sun),
+                converted, potential, stamps)
+            if months:
+                warnings.append(_changed_within("rg", columns["rg"], months, "another unit "
+                                                "or quantity (kW m-2, MJ m-2, PPFD or net "
+                                                "radiation)"))
     return refusals, warnings

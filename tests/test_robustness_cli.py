@@ -73,3 +73,98 @@ def test_demo_negative_seed_names_the_option(tmp_path, capsys):
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("error: --seed -1: expected a whole number >= 0")
     assert not (tmp_path / "d").exists()
+
+
+def test_report_and_export_into_an_unwritable_place_are_one_line(written_demo, tmp_path,
+                                                                capsys):
+    """An output below a file (or on a read-only medium, a folder without permission) is one
+    `error:` line naming the place, exit 2; before, the OSError of mkdir or mkstemp left
+    a traceback (exit 1)."""
+    _, folder = written_demo
+    blocker = tmp_path / "notes.txt"
+    blocker.write_text("a file where a folder was expected\n")
+    status = main(["report", str(folder), "--out", str(blocker / "report"), "--quiet"])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert status == 2 and len(err) == 1
+    assert err[0].startswith("error: the report folder") and "notes.txt" in err[0]
+    status = main(["export", str(folder), "--netcdf", str(blocker / "site.nc")])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert status == 2 and len(err) == 1
+    assert err[0].startswith("error: --netcdf") and "notes.txt" in err[0]
+    assert blocker.read_text() == "a file where a folder was expected\n"
+
+
+def test_sigterm_while_staging_is_one_line_and_leaves_no_staging(tmp_path):
+    """SIGTERM (`kill PID`, a scheduler's time limit) arriving while a result is staged:
+    exit 143 (128 + SIGTERM, the shell convention) with one `error:` line, and the staging
+    folder removed as on Ctrl-C; before, the process died outright and left
+    `.out.staging-*` beside the folder. Runs in a child process: without the handler
+    the signal ends the process that receives it."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    script = (
+        "import os, signal, time, sys\n"
+        "import pandas as pd\n"
+        "import fluxpart.cli as cli, fluxpart.resultdir as resultdir\n"
+        "def killed(staging, directory):\n"
+        "    os.kill(os.getpid(), signal.SIGTERM)\n"
+        "    time.sleep(5)\n"
+        "resultdir._swap_in = killed\n"
+        "def command(args):\n"
+        "    resultdir.write_folder(args.out, {'annual': pd.DataFrame({'nee': [1.0]})},\n"
+        "                           site={}, config={}, seed=0, provenance={})\n"
+        "    return 0\n"
+        "cli._command_run = command\n"
+        "sys.exit(cli.main(['run', 'site.toml', '--out', sys.argv[1]]))\n")
+    env = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    out = tmp_path / "out"
+    done = subprocess.run([sys.executable, "-c", script, str(out)], env=env, cwd=tmp_path,
+                          capture_output=True, text=True, timeout=120)
+    err = done.stderr.strip().splitlines()
+    assert done.returncode == 143, done.stderr
+    assert len(err) == 1 and err[0].startswith("error: terminated (SIGTERM)")
+    assert not out.exists()
+    assert not any(".staging" in path.name for path in tmp_path.iterdir())
+
+
+def test_usage_mistakes_are_one_error_line(capsys):
+    """A missing argument, an unknown command or option, a bad option value: one `error:`
+    line naming the command and the mistake, exit 2 (before: argparse's usage block and a
+    'fluxpart run: error: ...' line)."""
+    import pytest
+
+    for argv, said in ((["run"], "fluxpart run: the following arguments are required: config"),
+                       (["frobnicate"], "invalid choice: 'frobnicate'"),
+                       (["demo", "--seed", "x"], "fluxpart demo: argument --seed"),
+                       (["verify", "out", "--fast"], "unrecognized arguments: --fast")):
+        with pytest.raises(SystemExit) as stop:
+            main(argv)
+        err = capsys.readouterr().err.strip().splitlines()
+        assert stop.value.code == 2
+        assert len(err) == 1 and err[0].startswith("error: ") and said in err[0], err
+
+
+def test_status_survives_a_reader_that_closes_early(tmp_path):
+    """`fluxpart check SITE | head -1`: the reader closes the pipe, the next write fails
+    (EPIPE, POSIX write(2)). The command still exits with its own status (1: a problem
+    listed) and prints no traceback; before, it stopped at that write with status 0.
+    The pipe is closed before the command writes anything, so the test does not race."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    from fluxpart.demo import write_example
+
+    config = write_example(tmp_path)
+    config.write_text(config.read_text().replace("latitude = 49.3", "latitude = -49.3"))
+    env = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    child = subprocess.Popen([sys.executable, "-m", "fluxpart", "check", str(config)],
+                             env=env, stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+    child.stdout.close()
+    err = child.stderr.read().decode()
+    assert child.wait(timeout=300) == 1, err
+    assert "Traceback" not in err and "Exception ignored" not in err

@@ -172,3 +172,48 @@ def test_delimiter_hint_is_toml_that_works(example, tmp_path, capsys, character,
     frame, _ = read_config(config)
     plain, _ = read_config(example)
     assert frame.equals(plain)
+
+
+def test_delimiter_closing_every_data_line_reads_like_plain(example, tmp_path, capsys):
+    """Data lines ending in a delimiter under a header without one (a common spreadsheet
+    export) read like the plain file; before, the parser took the first field as a row
+    index, shifted every value one column right and blamed the stamps. Extra fields that
+    hold values are refused naming the first such line."""
+    from fluxpart.io import read_config
+
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    text = example.read_text(encoding="utf-8")
+    closed = tmp_path / "closed.csv"
+    closed.write_text("\n".join([lines[0]] + [line + "," for line in lines[1:]]) + "\n")
+    config = tmp_path / "closed.toml"
+    config.write_text(text.replace('path = "quillmoor_grassland.csv"', 'path = "closed.csv"'),
+                      encoding="utf-8")
+    frame, _ = read_config(config)
+    plain, _ = read_config(example)
+    assert frame.equals(plain)
+
+    extra = tmp_path / "extra.csv"
+    extra.write_text("\n".join([lines[0]] + [line + "," for line in lines[1:40]]
+                               + [line + ",7" for line in lines[40:]]) + "\n")
+    config.write_text(text.replace('path = "quillmoor_grassland.csv"', 'path = "extra.csv"'),
+                      encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "extra.csv" in line and "line 41 has 10 fields where the header has 9" in line
+
+
+def test_windows_backslash_path_gets_the_forward_slash_hint(example, tmp_path, capsys):
+    """`path = 'data\\tower.csv'` (a config written on Windows) names a file called
+    'data\\tower.csv' on POSIX systems, where the backslash is an ordinary character of a
+    file name (POSIX.1 path resolution); the error says to write '/'."""
+    (tmp_path / "data").mkdir()
+    (tmp_path / "data" / "tower.csv").write_bytes(example.with_suffix(".csv").read_bytes())
+    config = tmp_path / "site.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', "path = 'data\\tower.csv'"), encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "[input] path" in line and "forward slashes" in line
+    config.write_text(config.read_text(encoding="utf-8").replace(
+        "path = 'data\\tower.csv'", 'path = "data/tower.csv"'), encoding="utf-8")
+    assert main(["check", str(config)]) == 0

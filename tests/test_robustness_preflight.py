@@ -101,3 +101,37 @@ def test_run_error_starts_with_the_night_mask(tmp_path, capsys):
     assert main(["run", str(config), "--out", str(tmp_path / "out"), "--quiet"]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("error: night mask: Rg is at or above")
+
+
+def test_constant_ustar_is_among_the_run_warnings(year):
+    """A u* column stuck at one value (fact of the trade: turbulence never holds u* still)
+    is "detected" as its own threshold and filters nothing; `run` printed no warning, since
+    the run dropped every u* finding of the preflight as one it reports itself."""
+    from fluxpart import FluxpartWarning
+    from fluxpart.pipeline import process
+
+    frame, site, _ = year
+    stuck = frame.assign(ustar=np.where(frame["ustar"].notna(), 0.3, np.nan))
+    with pytest.warns(FluxpartWarning, match="ustar is constant"):
+        result = process(stuck, site)
+    named = [w for w in result.warnings if "ustar is constant" in w]
+    assert len(named) == 1 and named[0].startswith("u* filter:")
+
+
+@pytest.mark.parametrize("days, found", [(20, False), (31, True)])
+def test_month_without_nee_is_named_as_a_quality_c_gap(year, days, found):
+    """A month of NEE missing (a dead analyser, a lost file): the middle of a gap longer
+    than the 28-day full window of quality A lies more than 14 days from any measured NEE
+    (Reichstein, gap-filling flow chart (m)), so it is filled from other weeks; `check`
+    exited 0 and `run` warned of nothing, so the year read as complete. A 20-day gap is
+    filled within quality A windows and is not named."""
+    from fluxpart.pipeline import check_record
+
+    frame, site, _ = year
+    gap = (frame.index >= "2021-07-01") & (frame.index < pd.Timestamp("2021-07-01")
+                                           + pd.Timedelta(days=days))
+    _, findings = check_record(frame.assign(nee=frame["nee"].where(~gap)), site)
+    named = [f for f in findings if f.stage == "gap filling"]
+    assert bool(named) is found
+    if found:
+        assert not named[0].fatal and "31.2 days (2021-06-30" in named[0].message

@@ -71,3 +71,54 @@ def test_cli_check_lists_and_run_refuses_reversed_sign(tmp_path, capsys):
     assert any("opposite sign" in warning for warning in report.warnings)
     # values kept as given: the first record of the demo file is 0.329, negated here
     assert frame["nee"].iloc[0] == pytest.approx(-0.329)
+
+
+@pytest.mark.parametrize("seed", [2, 3, 4])
+def test_sign_reversed_for_a_season_is_warned_with_its_months(seed):
+    """NEE whose sign is reversed from July to September (a logger program changed and
+    changed back): the whole-record rule passes it (`check` exited 0 and `run` reported a
+    budget without a word); the same two facts applied to each calendar month name
+    reversed months in a warning, and no month of the correct file is named."""
+    import re
+
+    year = scenarios.generate(seed)
+    frame = year.frame
+    minutes = int((frame.index[1] - frame.index[0]).total_seconds() // 60)
+    converted = {name: frame[name].to_numpy(float) for name in _NAMES}
+    potential = _potential(frame.index, year.site, minutes)
+    columns = {n: n for n in _NAMES}
+    refusals, warnings = mixup_messages(converted, {}, columns, minutes, potential, (),
+                                        frame.index)
+    assert "nee" not in refusals
+    assert not any("may have changed within the record" in w for w in warnings)
+    season = (frame.index.month >= 7) & (frame.index.month <= 9)
+    converted["nee"] = converted["nee"] * (1.0 - 2.0 * season)
+    refusals, warnings = mixup_messages(converted, {}, columns, minutes, potential, (),
+                                        frame.index)
+    assert "nee" not in refusals
+    named = [w for w in warnings if "may have changed within the record" in w]
+    assert len(named) == 1
+    months = re.findall(r"\d{4}-\d{2}", named[0])
+    assert months and all(f"{year.scenario.year}-07" <= m <= f"{year.scenario.year}-09"
+                          for m in months)
+
+
+def test_cli_check_names_a_season_with_reversed_sign(tmp_path, capsys):
+    """End to end on the invented example: NEE negated from July to September; `check`
+    exited 0 before, now lists the months (exit 1)."""
+    config = write_example(tmp_path)
+    data = config.with_suffix(".csv")
+    lines = data.read_text().splitlines()
+    header = lines[0].split(",")
+    column, stamp = header.index("co2_exchange"), header.index("stamp_end")
+    flipped = [lines[0]]
+    for line in lines[1:]:
+        cells = line.split(",")
+        if "202107" <= cells[stamp][:6] <= "202109" and float(cells[column]) != -9999:
+            cells[column] = repr(-float(cells[column]))
+        flipped.append(",".join(cells))
+    data.write_text("\n".join(flipped) + "\n")
+    assert main(["check", str(config)]) == 1
+    out = capsys.readouterr().out
+    assert "'co2_exchange' (nee): in " in out and "2021-08" in out
+    assert "may have changed within the record" in out

@@ -180,3 +180,28 @@ def test_ordinary_numbers_are_not_named_a_clock():
     with pytest.raises(TimestampError) as caught:
         _parse(["202101010030", "202101010100", "2021010101xx"], "%Y%m%d%H%M", columns=("s",))
     assert "Unix" not in str(caught.value) and "spreadsheet" not in str(caught.value)
+
+
+def test_literal_z_in_the_format_is_utc():
+    """A format ending in a literal Z ("%Y-%m-%dT%H:%M:%SZ", as a logger on UTC writes
+    2021-07-01T11:00:00Z) declares UTC: ISO 8601 designates UTC by Z. The stamps are
+    converted to the site's local standard time like those read with %z, which the
+    standard library's datetime parses the same Z with; before, they were read as local
+    time, an hour off at a UTC+1 site."""
+    from datetime import timezone
+
+    utc = [datetime(2021, 7, 1, 11, 0) + timedelta(minutes=30 * k) for k in range(4)]
+    text = pd.Series([t.strftime("%Y-%m-%dT%H:%M:%SZ") for t in utc])
+    options = {"time_columns": ("stamp",), "source": "t.dat", "lines": np.arange(2, 6),
+               "utc_offset": 1.0}
+    stamps = parse_stamps(text, "%Y-%m-%dT%H:%M:%SZ", **options)
+    local = timezone(timedelta(hours=1))
+    expected = [datetime.strptime(t, "%Y-%m-%dT%H:%M:%S%z").astimezone(local)
+                .replace(tzinfo=None) for t in text]
+    assert list(stamps.stamps) == [pd.Timestamp(t) for t in expected]
+    assert expected[0] == datetime(2021, 7, 1, 12, 0) and stamps.offset_converted == 4
+    assert list(parse_stamps(text, "%Y-%m-%dT%H:%M:%S%z", **options).stamps) == \
+        list(stamps.stamps)
+    # the same file with time_zone = "UTC" (the other documented way) reads the same
+    assert list(parse_stamps(text, "%Y-%m-%dT%H:%M:%SZ", **options, time_zone="UTC").stamps) \
+        == list(stamps.stamps)

@@ -114,3 +114,64 @@ def test_fahrenheit_air_temperature_of_a_cool_site_refused(seed):
     kelvin = dict(converted, tair=converted["tair"] + 273.15)
     refusals, _ = mixup_messages(kelvin, {}, columns, minutes)
     assert "tair" not in refusals
+
+
+@pytest.mark.parametrize(("variable", "factor", "what"), [
+    ("rg", 1e-3, "kW m-2"),          # a pyranometer logged in kW m-2 from July on
+    ("nee", 1.0 / 22.7, "mg CO2"),   # a flux exported in mg CO2 m-2 s-1 from July on
+    ("rh", 0.01, "fraction"),         # relative humidity logged as a fraction from July on
+])
+def test_unit_changed_for_a_season_is_warned_with_its_months(variable, factor, what):
+    """A unit that changes within the record (a logger program or export changed in July,
+    changed back in October): the whole record passes the mix-up checks, and `check`
+    exited 0. Each check applied to a calendar month alone names the months in a warning;
+    no month of the correct file is named. 1 kW m-2 = 1000 W m-2 (SI); 1 µmol CO2 =
+    44.01 µg CO2 (IUPAC molar mass), so mg CO2 m-2 s-1 values are 22.7 times smaller."""
+    import re
+
+    from fluxpart import scenarios
+    from fluxpart.io import _potential
+
+    year = scenarios.generate(0)
+    frame = year.frame
+    minutes = int((frame.index[1] - frame.index[0]).total_seconds() // 60)
+    names = ("nee", "rg", "tair", "vpd", "rh")
+    converted = {n: frame[n].to_numpy(float) for n in names}
+    potential = _potential(frame.index, year.site, minutes)
+    columns = {n: n for n in names}
+    refusals, warnings = mixup_messages(converted, {}, columns, minutes, potential, (),
+                                        frame.index)
+    assert not refusals and not any("month(s)" in w for w in warnings)
+    season = (frame.index.month >= 7) & (frame.index.month <= 9)
+    converted[variable] = np.where(season, converted[variable] * factor, converted[variable])
+    refusals, warnings = mixup_messages(converted, {}, columns, minutes, potential, (),
+                                        frame.index)
+    assert variable not in refusals
+    named = [w for w in warnings if f"'{variable}' ({variable}): in " in w]
+    assert len(named) == 1 and what in named[0]
+    months = re.findall(r"\d{4}-\d{2}", named[0])
+    assert months and all(f"{year.scenario.year}-07" <= m <= f"{year.scenario.year}-09"
+                          for m in months)
+
+
+def test_clock_hours_off_is_not_called_an_rg_unit():
+    """Rg in W m-2 with the site's clock 12 h off (utc_offset mistyped): at the hours the
+    settings call bright it is night, so 90 % of those values are near 0, as kW m-2 would
+    be. But kW m-2 or MJ per interval stay below about 5 at every hour (1 kW m-2 =
+    1000 W m-2, SI), while these reach hundreds: no Rg unit is named (the clock check
+    names the offset); before, months of the record were called another unit."""
+    from fluxpart import scenarios
+    from fluxpart.io import _potential
+    from fluxpart.site import Site
+
+    year = scenarios.generate(0)
+    frame, site = year.frame, year.site
+    minutes = int((frame.index[1] - frame.index[0]).total_seconds() // 60)
+    wrong = Site(site.name, site.latitude, site.longitude, site.utc_offset + 12.0
+                 if site.utc_offset <= 2.0 else site.utc_offset - 12.0)
+    names = ("nee", "rg", "tair", "vpd")
+    converted = {n: frame[n].to_numpy(float) for n in names}
+    refusals, warnings = mixup_messages(converted, {}, {n: n for n in names}, minutes,
+                                        _potential(frame.index, wrong, minutes), (),
+                                        frame.index)
+    assert "rg" not in refusals and not any("'rg' (rg)" in w for w in warnings), warnings

@@ -280,6 +280,32 @@ def test_several_input_files_are_found_or_given_once_each(tmp_path, capsys):
                  "--input", str(moved / "part2.csv")]) == 0
 
 
+def test_input_files_of_a_glob_are_given_or_found_without_the_config(tmp_path, capsys):
+    """A record read through a glob (``path = "logger/part*.csv"``), the result moved without
+    its site config: the rerun takes the config from the manifest's copy, whose glob
+    matched nothing beside that copy in a scratch folder (the error named the scratch
+    folder) even with both files given with --input, or found beside the result."""
+    config = make_bundle(tmp_path / "site")
+    lines = (tmp_path / "site" / "tower.csv").read_text().splitlines(keepends=True)
+    half = len(lines) // 2
+    logger = tmp_path / "site" / "logger"
+    logger.mkdir()
+    (logger / "part1.csv").write_text("".join(lines[:half]))
+    (logger / "part2.csv").write_text("".join(lines[:1] + lines[half:]))
+    (tmp_path / "site" / "tower.csv").unlink()
+    config.write_text(config.read_text().replace('path = "tower.csv"',
+                                                 'path = "logger/part*.csv"'))
+    process_site_config(config).write(tmp_path / "site" / "out")
+    alone = tmp_path / "alone" / "out"
+    alone.parent.mkdir()
+    shutil.copytree(tmp_path / "site" / "out", alone)
+    assert main(["verify", str(alone), "--input", str(logger / "part1.csv"),
+                 "--input", str(logger / "part2.csv"), "--quiet"]) == 0, \
+        capsys.readouterr().err
+    shutil.copytree(logger, alone.parent / "logger")     # the data beside, the config not
+    assert main(["verify", str(alone), "--quiet"]) == 0, capsys.readouterr().err
+
+
 def test_python_written_result_is_checked_for_integrity_before_refusing(tmp_path, capsys):
     """Result.write without an input file: an intact folder exits 2 saying it matches its
     manifest but cannot be recomputed; a tampered table is still a failed verification
