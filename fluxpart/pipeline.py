@@ -794,7 +794,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         nee_measured, noise, is_night,
         lambda values: _fill_nee(values, conditions, index, is_night, config,
                                  gaps=measured & np.isnan(values))["value"],
-        seed=config.seed)
+        seed=config.seed, records_per_day=24 * 60 // interval)
     gapfill_model = uncertainty.gapfill_error_model(gap_errors)
     runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
                                 "reco_nighttime": n.reco, "gpp_daytime": d.gpp,

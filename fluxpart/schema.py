@@ -275,7 +275,13 @@ RANDOM_ERROR_MODEL_COLUMNS: dict[str, tuple[str, str]] = {
                              "independent of its neighbours (a in a n + b n^2)"),
     "correlated_variance": ("umol2 m-4 s-2", "gap filling: error variance shared by every "
                             "record of a gap (b in a n + b n^2)"),
+    "correlated_variance_long": ("umol2 m-4 s-2", "gap filling: error variance shared by "
+                                 "every record of a gap longer than one day (b for such gaps, "
+                                 "scored on artificial gaps of the site's own long gap lengths)"),
+    "neighbour_covariance": ("umol2 m-4 s-2", "gap filling: error covariance of two filled "
+                             "records of different gaps less than 7 days apart"),
     "gaps": ("1", "artificial gaps scored"),
+    "long_gap_blocks": ("1", "7-day blocks of artificial gaps longer than one day scored"),
     "records": ("1", "held-out measured records scored"),
 }
 

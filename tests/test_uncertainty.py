@@ -528,10 +528,10 @@ def test_structural_part_is_the_method_difference_the_parameter_parts_do_not_exp
 
 
 @pytest.mark.parametrize("bias, bias_se", [(0.02, 0.005), (0.005, 0.02)])
-def test_fill_bias_part_is_the_larger_of_the_bias_and_its_standard_error(bias, bias_se):
-    """A bias estimate B with standard error S has E[B²] = (Nμ)² + S² (elementary
-    statistics), and the part to state, (Nμ)² + S², is at least S²; the gap-filling
-    part is therefore max(B², S²) over the filled records, not B² + S²."""
+def test_fill_bias_part_is_the_bias_itself(bias, bias_se):
+    """The fill error of N records holds their common bias Nμ; its estimate B has
+    E[B²] = (Nμ)² + Var(B) (elementary statistics), so B² states (Nμ)² with the
+    estimate's own spread on top, whatever S. S is reported, not added."""
     from fluxpart.uncertainty import UncertaintyInputs, period_uncertainty
 
     index = pd.date_range("2021-06-01", periods=4 * 48, freq="30min")
@@ -551,10 +551,9 @@ def test_fill_bias_part_is_the_larger_of_the_bias_and_its_standard_error(bias, b
         day_relative_se=np.full(n, np.nan))
     out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
     grams = 1800 * 12.011e-6
-    big, small = 23 * bias * grams, 23 * bias_se * grams
-    assert out["nee_uncertainty_gapfill_bias"] == pytest.approx(big)
-    assert out["nee_uncertainty_gapfill_bias_se"] == pytest.approx(small)
-    assert out["nee_uncertainty_gapfill"] == pytest.approx(max(big, small))
+    assert out["nee_uncertainty_gapfill_bias"] == pytest.approx(23 * bias * grams)
+    assert out["nee_uncertainty_gapfill_bias_se"] == pytest.approx(23 * bias_se * grams)
+    assert out["nee_uncertainty_gapfill"] == pytest.approx(23 * bias * grams)
 
 
 def _random_walk_windows(rng, centres_days, drift, relative_se=0.0):
@@ -658,3 +657,120 @@ def test_interpolation_error_needs_two_windows():
     assert spread[1] == 0.0 and spread[3] == 0.0
     assert spread[2] == pytest.approx(np.sqrt(drift), rel=1e-12)
     assert spread[0] == pytest.approx(np.sqrt(2.0 * drift), rel=1e-12)
+
+
+def test_block_ids_cut_runs_into_blocks_from_each_run_start():
+    """Runs of True cut into blocks of 3 records from their own start (definition)."""
+    from fluxpart.uncertainty import _block_ids
+
+    mask = np.array([0, 1, 1, 1, 1, 0, 1, 1, 1, 1, 1, 1, 1, 0], dtype=bool)
+    np.testing.assert_array_equal(_block_ids(mask, 3),
+                                  [-1, 0, 0, 0, 1, -1, 2, 2, 2, 3, 3, 3, 4, -1])
+    np.testing.assert_array_equal(_block_ids(np.zeros(4, dtype=bool), 3), [-1, -1, -1, -1])
+
+
+def _neighbour_rows(rng, rounds, covariance, independent=1.0):
+    """Artificial-gap rows whose errors share one level per round (covariance per
+    record pair `covariance` between any two gaps) plus independent per-record errors."""
+    rows = []
+    for number in range(rounds):
+        level = rng.normal(0.0, np.sqrt(covariance))
+        count = rng.integers(1, 12, size=120)
+        start = np.sort(rng.uniform(0.0, 365.0, size=120))
+        total = level * count + np.sqrt(independent * count) * rng.standard_normal(120)
+        rows.append(pd.DataFrame({"round": number, "gap": np.arange(120),
+                                  "record_class": "day", "records": count, "length": count,
+                                  "error_sum": total, "noise_variance": 0.0, "long": False,
+                                  "start_day": start}))
+    return pd.concat(rows, ignore_index=True)
+
+
+def test_neighbour_covariance_recovers_a_shared_error_and_matches_its_definition():
+    """Known truth (invented): gap errors share one level per round, so two records of
+    different gaps covary by the level's variance c. The moment estimate
+    Σ S_g (W_g - S_g) / Σ n_g (M_g - n_g) (gaps within ±7 days; elementary statistics)
+    recovers c over 400 rounds, equals its pairwise definition computed gap by gap,
+    and is 0 for independent gaps in the mean."""
+    from fluxpart.uncertainty import _neighbour_covariance
+
+    rng = np.random.default_rng(11)
+    rows = _neighbour_rows(rng, 400, covariance=0.05)
+    assert _neighbour_covariance(rows, 0.0) == pytest.approx(0.05, rel=0.25)
+    # the definition, pair by pair, on a few rounds
+    few = rows[rows["round"] < 3]
+    numerator = denominator = 0.0
+    for _, one in few.groupby("round"):
+        day, s, n = (one[c].to_numpy(float) for c in ("start_day", "error_sum", "records"))
+        near = (np.abs(day[:, None] - day[None, :]) <= 7.0) & ~np.eye(day.size, dtype=bool)
+        numerator += float(np.sum(np.outer(s, s)[near]))
+        denominator += float(np.sum(np.outer(n, n)[near]))
+    assert _neighbour_covariance(few, 0.0) == pytest.approx(max(numerator / denominator, 0.0))
+    independent = [_neighbour_covariance(_neighbour_rows(rng, 20, 0.0), 0.0)
+                   for _ in range(20)]
+    assert np.mean(independent) < 0.01           # clipped at 0, small where none is planted
+    assert _neighbour_covariance(rows.drop(columns="start_day"), 0.0) == 0.0
+
+
+def test_long_gaps_get_their_own_shared_variance_by_week_blocks():
+    """Known truth (invented): blocks of long artificial gaps with S = sqrt(b_long) m Z1
+    + sqrt(a m) Z2 (a from the short gaps) recover b_long; without long rows b_long
+    equals the short gaps' b."""
+    rng = np.random.default_rng(4)
+    short = _neighbour_rows(rng, 30, covariance=0.0).assign(record_class="night")
+    m = rng.integers(50, 336, size=3000)
+    long_rows = pd.DataFrame({"round": 3, "gap": np.arange(m.size), "record_class": "night",
+                              "records": m, "length": 700, "long": True,
+                              "error_sum": np.sqrt(0.02) * m * rng.standard_normal(m.size)
+                              + np.sqrt(m) * rng.standard_normal(m.size),   # a = 1, as short
+                              "noise_variance": 0.0, "start_day": np.nan})
+    model = gapfill_error_model(pd.concat([short, long_rows], ignore_index=True))
+    row = model.loc["night"]
+    assert row["correlated_variance_long"] == pytest.approx(0.02, rel=0.15)
+    assert row["long_gap_blocks"] == m.size
+    alone = gapfill_error_model(short).loc["night"]
+    assert alone["correlated_variance_long"] == alone["correlated_variance"]
+
+
+def _filled_inputs(index, measured, model):
+    """UncertaintyInputs with NEE = 1 everywhere, no other part."""
+    from fluxpart.uncertainty import UncertaintyInputs
+
+    n = len(index)
+    zeros = np.zeros(n)
+    fluxes = pd.DataFrame({name: np.ones(n) for name in (
+        "nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")}, index=index)
+    return UncertaintyInputs(
+        measured=measured, noise_sigma=zeros, is_night=np.zeros(n, dtype=bool), fluxes=fluxes,
+        runs={}, gapfill_model=model, e0_delta=zeros, night_window=np.zeros(n, dtype=int),
+        night_relative_se=np.full(n, np.nan), day_window=np.zeros(n, dtype=int),
+        day_relative_se=np.full(n, np.nan))
+
+
+def test_period_gapfill_part_counts_neighbour_pairs_and_week_blocks():
+    """Var(Σ errors) = Σ_i Σ_j cov(i, j) (elementary statistics): two one-record gaps 3
+    days apart add 2c (the pair in both orders), none 10 days apart or across periods;
+    a 10-day gap (30-min records) shares b_long within a 7-day block and the rest:
+    b_long (336² + 144²)."""
+    from fluxpart.uncertainty import period_uncertainty
+
+    index = pd.date_range("2021-06-01", periods=40 * 48, freq="30min")
+    n = len(index)
+    model = pd.DataFrame({"bias": [0.0, 0.0], "bias_se": [0.0, 0.0],
+                          "independent_variance": [0.0, 0.0], "correlated_variance": [0.0, 0.0],
+                          "correlated_variance_long": [0.0, 0.0],
+                          "neighbour_covariance": [0.3, 0.3]},
+                         index=pd.Index(["night", "day"], name="record_class"))
+    grams = 1800 * 12.011e-6
+    measured = np.ones(n, dtype=bool)
+    measured[[100, 100 + 3 * 48, 100 + 13 * 48]] = False   # 0 and 3 days apart; 10 days on
+    out = period_uncertainty(_filled_inputs(index, measured, model), np.zeros(n, int), 30)
+    assert out["nee_uncertainty_gapfill"].iloc[0] == pytest.approx(np.sqrt(2 * 0.3) * grams)
+    by_day = period_uncertainty(_filled_inputs(index, measured, model),
+                                index.normalize(), 30)
+    assert (by_day["nee_uncertainty_gapfill"] == 0).all()   # each day holds one filled record
+    long_model = model.assign(neighbour_covariance=0.0, correlated_variance_long=0.01)
+    measured = np.ones(n, dtype=bool)
+    measured[200:200 + 480] = False
+    out = period_uncertainty(_filled_inputs(index, measured, long_model), np.zeros(n, int), 30)
+    assert out["nee_uncertainty_gapfill"].iloc[0] == pytest.approx(
+        np.sqrt(0.01 * (336**2 + 144**2)) * grams)

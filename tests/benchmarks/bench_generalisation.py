@@ -80,6 +80,10 @@ def scored(site_year: scenarios.SiteYear, row: dict) -> dict:
         row[f"{column}_relative"] = row[f"{column}_error"] / abs(truth)
         row[f"{column}_covered"] = bool(annual[f"{column}_ci95_low"] <= truth
                                         <= annual[f"{column}_ci95_high"])
+        row[f"{column}_width"] = float(annual[f"{column}_ci95_high"]
+                                       - annual[f"{column}_ci95_low"])
+    for part in ("random", "gapfill", "gapfill_bias", "gapfill_bias_se", "ustar"):
+        row[f"nee_uncertainty_{part}"] = float(annual[f"nee_uncertainty_{part}"])
     return row
 
 
