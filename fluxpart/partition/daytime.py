@@ -187,6 +187,9 @@ _LAMBDA_MAX = 1e10
 _FTOL = 1e-10                # relative cost change at convergence
 _XTOL = 1e-8                 # relative step at convergence
 _SE_TOL = 1e-2               # remaining step in standard errors at convergence
+# packed records (windows x width) iterated together by the fit: one site-year's
+# windows (~20k) in one block, many years in blocks (our choice)
+_FIT_BLOCK_ELEMENTS = 1 << 16
 _MAX_CONDITION = 1e12        # largest condition number of the scaled J^T J (our choice)
 _E0_GRID_STEP = 10.0         # K, coarse grid of the E0 profile (our choice)
 _E0_BOUND_MARGIN = 0.5       # K, an E0 this close to a bound counts as at the bound
@@ -1013,6 +1016,10 @@ def _levenberg_marquardt(theta, fixed, lower, upper, windows, mask, vpd0, max_it
     array once, a trial point is evaluated without its Jacobian, and ``J^T J`` and
     ``J^T r`` are recomputed only where a step was accepted (a rejected step leaves
     the point, so they are unchanged); windows leave the arrays as they converge.
+    Many years of windows are iterated in blocks of ``_FIT_BLOCK_ELEMENTS`` packed
+    records (a site-year's windows are one block), so that an iteration's arrays
+    stay ~0.5 MB; every window is computed on its own, in arrays of the same width,
+    so the blocks do not change the numbers.
     """
     theta = theta.copy()
     done = fixed.all(axis=1)
@@ -1021,6 +1028,20 @@ def _levenberg_marquardt(theta, fixed, lower, upper, windows, mask, vpd0, max_it
     if len(active) == 0:
         return theta, converged
     data = _packed_fit_data(windows, mask, active, vpd0)
+    rows = max(1, _FIT_BLOCK_ELEMENTS // data["nee"].shape[1])
+    if rows >= len(active):
+        _iterate(theta, converged, active, fixed, lower, upper, data, max_iterations)
+        return theta, converged
+    for first in range(0, len(active), rows):
+        block = slice(first, first + rows)
+        _iterate(theta, converged, active[block], fixed, lower, upper,
+                 _take_rows(data, block), max_iterations)
+    return theta, converged
+
+
+def _iterate(theta, converged, active, fixed, lower, upper, data, max_iterations) -> None:
+    """The iterations of :func:`_levenberg_marquardt` for the windows `active`, packed in
+    `data`: writes their parameters into `theta` and their convergence into `converged`."""
     current, held = theta[active], fixed[active]
     damping = np.full(len(active), _LAMBDA_START)
     cost, parts = _cost(current, data)
@@ -1061,7 +1082,6 @@ def _levenberg_marquardt(theta, fixed, lower, upper, windows, mask, vpd0, max_it
             live = live[live]
     theta[active] = current
     converged[active[~live]] = True
-    return theta, converged
 
 
 def _packed_fit_data(windows, mask, rows, vpd0) -> dict:

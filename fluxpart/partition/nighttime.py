@@ -509,6 +509,9 @@ def fit_e0_windows(index, nee, temperature, is_night, *, e0_window_days=15.0,
 _JOINT_GRID_STEP = 1.0     # K, resolution of the profile search (our choice)
 _JOINT_COARSE_STRIDE = 5   # the search first steps 5 K, then 1 K around the best (our choice)
 _JOINT_JACKKNIFE_REACH = 40.0   # K around the best coarse E0 searched at 1 K (our choice)
+# grid values x records per block of the E0 profile: 128 KiB per temporary array, which
+# stays in the CPU cache and is reused from the heap block after block (our choice)
+_PROFILE_BLOCK_ELEMENTS = 1 << 14
 
 
 def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
@@ -649,9 +652,27 @@ def _absolute_deviation_profile(flux, term, starts, grid):
     ``Σ |flux - Rref f| = Σ f |flux/f - Rref|`` is smallest at the
     f-weighted median of ``flux/f`` in each window. Returns the sum of
     absolute deviations and the Rref per grid value and window.
+
+    The grid values are taken a few at a time (blocks of at most
+    ``_PROFILE_BLOCK_ELEMENTS`` grid values x records): each grid value's row is
+    computed on its own, so the blocks give the same numbers as one pass, while the
+    temporary arrays stay small enough for the CPU cache and are reused block after
+    block; one pass over a year's night records allocated ~35 MB per call, which a
+    fresh process mostly got as new pages from the kernel.
     """
     sizes = np.diff(np.r_[starts, flux.size])
     window = np.repeat(np.arange(starts.size), sizes)
+    rows = max(1, _PROFILE_BLOCK_ELEMENTS // max(flux.size, 1))
+    blocks = [_deviation_rows(flux, term, starts, sizes, window, grid[first:first + rows])
+              for first in range(0, max(grid.size, 1), rows)]
+    if len(blocks) == 1:
+        return blocks[0]
+    return (np.concatenate([deviation for deviation, _ in blocks]),
+            np.concatenate([rref for _, rref in blocks]))
+
+
+def _deviation_rows(flux, term, starts, sizes, window, grid):
+    """:func:`_absolute_deviation_profile` of the grid values `grid` (one block)."""
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         shape = np.exp(grid[:, None] * term[None, :])
         ratio = flux[None, :] / shape
