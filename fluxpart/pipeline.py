@@ -729,12 +729,12 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         parameters["random_error_model"] = error_model.table()
         parameters["random_error_bins"] = error_model.bins
     except InsufficientDataError as error:
-        sigma = np.full(len(timeseries), np.nan)
+        sigma, error_model = np.full(len(timeseries), np.nan), None
         warnings.append(f"random error of NEE not estimated: {error}")
     timeseries = timeseries.assign(nee_random_error=sigma)
     daily, monthly, annual, gapfill_model = _uncertainty(
         daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night, night, day,
-        temperature, interval, config, year_keys, night_fits)
+        temperature, interval, config, year_keys, night_fits, error_model)
     parameters["gapfill_error_model"] = gapfill_model
     annual = annual.join(uncertainty.carbon_accounting_units(annual))
     audit_table = audit.audit_trail(timeseries, year_keys=year_keys)
@@ -779,7 +779,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
 
 
 def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night,
-                 night, day, temperature, interval, config, year_keys, night_fits):
+                 night, day, temperature, interval, config, year_keys, night_fits,
+                 error_model=None):
     """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals.
 
     `night_fits`: nighttime fits on the central measured NEE and the input's temperature
@@ -821,7 +822,10 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         index, runs["central"], runs if len(runs) > 1 else {}, measured, noise, is_night,
         timeseries[f"{temperature}_filled"].to_numpy(dtype=float), night, day.parameters,
         gapfill_model, rref_window_days=config.rref_window_days, other_driver_reco=other_reco,
-        nee_measured=nee_measured)
+        nee_measured=nee_measured,
+        fill_window_days=timeseries["nee_fill_window_days"].to_numpy(dtype=float),
+        fill_noise_sigma=None if error_model is None else error_model.predict(
+            timeseries["nee_filled"].to_numpy(dtype=float)))
     percentiles = config.ustar_scenarios
     tables = []
     for table, keys in ((daily, index.normalize()),

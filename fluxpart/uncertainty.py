@@ -1252,6 +1252,28 @@ def _neighbour_pairs(records, night, gap_id, codes, records_per_day) -> np.ndarr
     return out
 
 
+def _donor_noise(inputs: UncertaintyInputs, codes, filled, interval_minutes) -> np.ndarray:
+    """Per filled record: its covariance with the measured records of its period
+    [(µmol m-2 s-1)²], σ² times the share of its donor window inside the period.
+
+    A fill is the mean of k donors, so its error holds their mean random error
+    and covaries with their sum by σ² (k donors of error variance σ² each,
+    weighted 1/k). The donors are taken as spread evenly over the fill's window,
+    of which the share inside the record's period counts; 0 where the window or
+    σ is unknown.
+    """
+    if inputs.fill_window_days is None or inputs.fill_noise_sigma is None:
+        return np.zeros(len(filled))
+    elapsed = ((inputs.fluxes.index - inputs.fluxes.index[0]) / pd.Timedelta(days=1)).to_numpy()
+    step = int(interval_minutes) / _MINUTES_PER_DAY
+    start = pd.Series(elapsed).groupby(codes).min().to_numpy()[codes]
+    end = pd.Series(elapsed).groupby(codes).max().to_numpy()[codes] + step
+    width = np.maximum(np.nan_to_num(inputs.fill_window_days), step)
+    inside = np.minimum(elapsed + width / 2, end) - np.maximum(elapsed - width / 2, start)
+    share = np.clip(inside / width, 0.0, 1.0)
+    return np.where(filled, share * np.square(np.nan_to_num(inputs.fill_noise_sigma)), 0.0)
+
+
 def _grouped_square(keys, groups, values) -> pd.Series:
     """Σ over groups of (Σ values of the group within the period)², per period key."""
     values = np.asarray(values, dtype=float)
@@ -1336,6 +1358,11 @@ class UncertaintyInputs:
         Stretch between Rref window centres of each record and the relative
         standard deviation of its interpolated Rref (:func:`interpolation_error`);
         None: not counted.
+    fill_window_days, fill_noise_sigma : numpy.ndarray or None
+        Full width of the window each filled NEE record's donors came from [days]
+        and the random error the error model gives at the filled value
+        [µmol m-2 s-1]: the covariance of fills with the measured records they
+        average (:func:`period_uncertainty`); None: not counted.
     """
 
     measured: np.ndarray
@@ -1355,6 +1382,8 @@ class UncertaintyInputs:
     night_interpolation_sd: np.ndarray | None = None
     day_interval: np.ndarray | None = None
     day_interpolation_sd: np.ndarray | None = None
+    fill_window_days: np.ndarray | None = None
+    fill_noise_sigma: np.ndarray | None = None
 
 
 def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
@@ -1409,7 +1438,8 @@ def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
 def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma, is_night,
                   temperature, nighttime_result, daytime_parameters, gapfill_model, *,
                   rref_window_days=4.0, other_driver_reco=None,
-                  nee_measured=None) -> UncertaintyInputs:
+                  nee_measured=None, fill_window_days=None,
+                  fill_noise_sigma=None) -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -1468,6 +1498,8 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         day_window=day_window, day_relative_se=day_se,
         night_interval=night_interval, night_interpolation_sd=night_interpolation,
         day_interval=day_interval, day_interpolation_sd=day_interpolation,
+        fill_window_days=None if fill_window_days is None else np.asarray(fill_window_days, float),
+        fill_noise_sigma=None if fill_noise_sigma is None else np.asarray(fill_noise_sigma, float),
         driver_delta=None if other_driver_reco is None else
         np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
         driver_weight=0.0 if other_driver_reco is None else driver_weight(
@@ -1629,17 +1661,20 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             correlated = grouped(block_id, np.where(records, np.sqrt(shared), 0.0))
             neighbours = per_period(np.where(records, pick["neighbour_covariance"] * _neighbour_pairs(
                 records, night, gap_id, codes, records_per_day), 0.0))
+            # a fill averages measured records: 2 cov(fill, the period's measured records)
+            donors = per_period(np.where(records, 2.0 * donor_noise, 0.0))
             bias = per_period(np.where(records, pick["bias"], 0.0)) * factor
             bias_se = per_period(np.where(records, pick["bias_se"], 0.0)) * factor
             # B² overstates the squared bias (Nμ)² by the variance of its estimate (Notes)
-            return (independent + correlated + neighbours) * factor**2 + np.square(bias), \
-                bias, bias_se
+            return (independent + correlated + neighbours + donors) * factor**2 \
+                + np.square(bias), bias, bias_se
 
         gap_id = _run_ids(filled)
         records_per_day = _MINUTES_PER_DAY // int(interval_minutes)
         long_gap = filled & (np.bincount(gap_id[filled])[np.maximum(gap_id, 0)] > records_per_day)
         # a gap of a day or less is one block; a longer one shares its error by 7-day blocks
         block_id = _block_ids(filled, int(_NEIGHBOUR_DAYS * records_per_day))
+        donor_noise = _donor_noise(inputs, codes, filled, interval_minutes)
         gap_var, bias, bias_se = fill_variance(filled)
         gap_var_day = fill_variance(filled & ~night)[0]
     unknown = pd.Series(np.nan, index=index)
