@@ -182,16 +182,17 @@ UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
     "nee_uncertainty_gapfill": (CARBON, "1 sigma of the NEE sum (carbon) from gap filling, "
                                 "scored on artificial gaps of the site's own gap lengths: "
                                 "independent and within-gap correlated parts (Richardson & "
-                                "Hollinger 2007) plus the larger of the systematic fill bias and "
-                                "its standard error"),
+                                "Hollinger 2007; gaps longer than a day by 7-day blocks), the "
+                                "covariance of fills less than 7 days apart and of each fill with "
+                                "the measured records it averages, plus the systematic fill bias"),
     "nee_uncertainty_gapfill_bias": (CARBON, "systematic gap-filling bias of the NEE sum "
                                      "(carbon) on artificial gaps (fill minus measured; not "
                                      "subtracted from nee, counted in nee_uncertainty_gapfill)"),
     "nee_uncertainty_gapfill_bias_se": (CARBON, "standard error of nee_uncertainty_gapfill_bias "
                                         "(carbon) from the spread of the artificial gaps' "
                                         "errors, as if the period's filled records shared one "
-                                        "error; nee_uncertainty_gapfill counts the larger of "
-                                        "it and the bias"),
+                                        "error; reported, not counted in "
+                                        "nee_uncertainty_gapfill (since 0.7.0)"),
     "gpp_nighttime_uncertainty_random": (CARBON, "1 sigma: random error of nighttime GPP "
                                          "(GPP = Reco - NEE): random error of the NEE sum over "
                                          "the measured records outside the night, grams of "
