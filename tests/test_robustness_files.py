@@ -10,6 +10,7 @@ import bz2
 import codecs
 import gzip
 import zipfile
+from pathlib import Path
 
 import pytest
 
@@ -20,6 +21,15 @@ from fluxpart.demo import write_example
 @pytest.fixture(scope="module")
 def example(tmp_path_factory):
     return write_example(tmp_path_factory.mktemp("robust_files"))
+
+
+def _with_records(example, folder, name, records):
+    """The example's site config beside `records` (the CSV text) saved as `name`."""
+    (folder / name).write_text(records)
+    config = folder / f"{Path(name).stem}.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', f'path = "{name}"'), encoding="utf-8")
+    return config
 
 
 def _one_error(capsys):
@@ -111,16 +121,9 @@ def test_header_padded_with_spaces_reads_like_plain(example, tmp_path):
     exports often are) gives the same frame as the plain file."""
     from fluxpart.io import read_config
 
-    text = example.read_text(encoding="utf-8")
-    plain = tmp_path / "plain.toml"
-    plain.write_text(text.replace('path = "quillmoor_grassland.csv"',
-                                  f'path = "{example.with_suffix(".csv")}"'), encoding="utf-8")
-    padded_csv = tmp_path / "padded.csv"
-    padded_csv.write_text(example.with_suffix(".csv").read_text().replace(",", ", "))
-    padded = tmp_path / "padded.toml"
-    padded.write_text(text.replace('path = "quillmoor_grassland.csv"', 'path = "padded.csv"'),
-                      encoding="utf-8")
-    expected, _ = read_config(plain)
+    padded = _with_records(example, tmp_path, "padded.csv",
+                           example.with_suffix(".csv").read_text().replace(",", ", "))
+    expected, _ = read_config(example)
     frame, _ = read_config(padded)
     assert frame.equals(expected)
 
@@ -134,11 +137,7 @@ def test_text_site_flag_hint_does_not_suggest_missing(example, tmp_path, capsys)
         cells = lines[row].split(",")
         cells[column] = "bad"
         lines[row] = ",".join(cells)
-    data = tmp_path / "flags.csv"
-    data.write_text("\n".join(lines) + "\n")
-    config = tmp_path / "site.toml"
-    config.write_text(example.read_text(encoding="utf-8").replace(
-        'path = "quillmoor_grassland.csv"', 'path = "flags.csv"'), encoding="utf-8")
+    config = _with_records(example, tmp_path, "flags.csv", "\n".join(lines) + "\n")
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "'qc_co2' (nee_flag)" in line and "flag_accept" in line
@@ -182,21 +181,15 @@ def test_delimiter_closing_every_data_line_reads_like_plain(example, tmp_path, c
     from fluxpart.io import read_config
 
     lines = example.with_suffix(".csv").read_text().splitlines()
-    text = example.read_text(encoding="utf-8")
-    closed = tmp_path / "closed.csv"
-    closed.write_text("\n".join([lines[0]] + [line + "," for line in lines[1:]]) + "\n")
-    config = tmp_path / "closed.toml"
-    config.write_text(text.replace('path = "quillmoor_grassland.csv"', 'path = "closed.csv"'),
-                      encoding="utf-8")
+    config = _with_records(example, tmp_path, "closed.csv",
+                           "\n".join([lines[0]] + [line + "," for line in lines[1:]]) + "\n")
     frame, _ = read_config(config)
     plain, _ = read_config(example)
     assert frame.equals(plain)
 
-    extra = tmp_path / "extra.csv"
-    extra.write_text("\n".join([lines[0]] + [line + "," for line in lines[1:40]]
-                               + [line + ",7" for line in lines[40:]]) + "\n")
-    config.write_text(text.replace('path = "quillmoor_grassland.csv"', 'path = "extra.csv"'),
-                      encoding="utf-8")
+    config = _with_records(example, tmp_path, "extra.csv",
+                           "\n".join([lines[0]] + [line + "," for line in lines[1:40]]
+                                     + [line + ",7" for line in lines[40:]]) + "\n")
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "extra.csv" in line and "line 41 has 10 fields where the header has 9" in line
