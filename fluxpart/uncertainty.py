@@ -1678,7 +1678,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
 
         gap_id = _run_ids(filled)
         records_per_day = _MINUTES_PER_DAY // int(interval_minutes)
-        long_gap = filled & (np.bincount(gap_id[filled])[np.maximum(gap_id, 0)] > records_per_day)
+        gap_length = np.bincount(gap_id[filled], minlength=1)     # minlength: no filled record
+        long_gap = filled & (gap_length[np.maximum(gap_id, 0)] > records_per_day)
         # a gap of a day or less is one block; a longer one shares its error by 7-day blocks
         block_id = _block_ids(filled, int(_NEIGHBOUR_DAYS * records_per_day))
         donor_noise = _donor_noise(inputs, codes, filled, interval_minutes)

@@ -802,3 +802,20 @@ def test_fill_covaries_with_the_measured_records_it_averages():
     without = period_uncertainty(replace(inputs, fill_noise_sigma=None),
                                  np.zeros(n, dtype=int), 30).iloc[0]
     assert without["nee_uncertainty_gapfill"] == 0.0
+
+
+def test_period_gapfill_part_without_filled_records_is_zero():
+    """A period without filled records has no gap-filling error: Var(Σ over no fills) = 0
+    (elementary statistics), whatever the error model; before, the gap-length count of an
+    input without fills raised IndexError."""
+    from fluxpart.uncertainty import period_uncertainty
+
+    index = pd.date_range("2021-06-01", periods=4 * 48, freq="30min")
+    n = len(index)
+    model = pd.DataFrame({"bias": [0.1, 0.1], "bias_se": [0.05, 0.05],
+                          "independent_variance": [0.2, 0.2], "correlated_variance": [0.01, 0.01]},
+                         index=pd.Index(["night", "day"], name="record_class"))
+    out = period_uncertainty(_filled_inputs(index, np.ones(n, dtype=bool), model),
+                             index.normalize(), 30)
+    assert (out["nee_uncertainty_gapfill"] == 0.0).all()
+    assert (out["nee_uncertainty_gapfill_bias"] == 0.0).all()
