@@ -1269,9 +1269,10 @@ def _donor_noise(inputs: UncertaintyInputs, codes, filled, interval_minutes) -> 
     step = int(interval_minutes) / _MINUTES_PER_DAY
     start = pd.Series(elapsed).groupby(codes).min().to_numpy()[codes]
     end = pd.Series(elapsed).groupby(codes).max().to_numpy()[codes] + step
-    width = np.maximum(np.nan_to_num(inputs.fill_window_days), step)
+    window = np.asarray(inputs.fill_window_days, dtype=float)
+    width = np.maximum(np.nan_to_num(window), step)
     inside = np.minimum(elapsed + width / 2, end) - np.maximum(elapsed - width / 2, start)
-    share = np.clip(inside / width, 0.0, 1.0)
+    share = np.where(np.isfinite(window), np.clip(inside / width, 0.0, 1.0), 0.0)
     return np.where(filled, share * np.square(np.nan_to_num(inputs.fill_noise_sigma)), 0.0)
 
 

@@ -819,3 +819,23 @@ def test_period_gapfill_part_without_filled_records_is_zero():
                              index.normalize(), 30)
     assert (out["nee_uncertainty_gapfill"] == 0.0).all()
     assert (out["nee_uncertainty_gapfill_bias"] == 0.0).all()
+
+
+def test_fill_of_unknown_donor_window_adds_no_donor_covariance():
+    """_donor_noise's stated rule: 0 where the fill's window is unknown (NaN). Before, a
+    NaN window was read as one record wide and counted σ² whole (2σ² to the variance)."""
+    from dataclasses import replace
+
+    from fluxpart.uncertainty import _donor_noise
+
+    index = pd.date_range("2021-06-01", periods=40 * 48, freq="30min")
+    n = len(index)
+    measured = np.ones(n, dtype=bool)
+    measured[[10 * 48, 20 * 48]] = False
+    window = np.where(measured, np.nan, 14.0)
+    window[20 * 48] = np.nan
+    inputs = replace(_filled_inputs(index, measured, None), fill_window_days=window,
+                     fill_noise_sigma=np.full(n, 2.0))
+    donors = _donor_noise(inputs, np.zeros(n, dtype=int), ~measured, 30)
+    assert donors[10 * 48] == pytest.approx(4.0)      # σ² = 2², the window wholly inside
+    assert donors[20 * 48] == 0.0
