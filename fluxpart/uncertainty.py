@@ -1259,9 +1259,9 @@ def _donor_noise(inputs: UncertaintyInputs, codes, filled, interval_minutes) -> 
 
     A fill is the mean of k donors, so its error holds their mean random error
     and covaries with their sum by σ² (k donors of error variance σ² each,
-    weighted 1/k). The donors are taken as spread evenly over the fill's window,
-    of which the share inside the record's period counts; 0 where the window or
-    σ is unknown.
+    weighted 1/k). The donors are taken as spread evenly over the fill's window
+    cut at the ends of the record (donors are measured records), of which the
+    share inside the record's period counts; 0 where the window or σ is unknown.
     """
     if inputs.fill_window_days is None or inputs.fill_noise_sigma is None:
         return np.zeros(len(filled))
@@ -1271,8 +1271,12 @@ def _donor_noise(inputs: UncertaintyInputs, codes, filled, interval_minutes) -> 
     end = pd.Series(elapsed).groupby(codes).max().to_numpy()[codes] + step
     window = np.asarray(inputs.fill_window_days, dtype=float)
     width = np.maximum(np.nan_to_num(window), step)
-    inside = np.minimum(elapsed + width / 2, end) - np.maximum(elapsed - width / 2, start)
-    share = np.where(np.isfinite(window), np.clip(inside / width, 0.0, 1.0), 0.0)
+    low, high = elapsed - width / 2, elapsed + width / 2
+    inside = np.minimum(high, end) - np.maximum(low, start)
+    # the donors are measured records, so the window ends where the record ends
+    in_record = np.minimum(high, elapsed[-1] + step) - np.maximum(low, 0.0)
+    share = np.where(np.isfinite(window),
+                     np.clip(inside / np.maximum(in_record, step), 0.0, 1.0), 0.0)
     return np.where(filled, share * np.square(np.nan_to_num(inputs.fill_noise_sigma)), 0.0)
 
 

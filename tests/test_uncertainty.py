@@ -780,7 +780,9 @@ def test_fill_covaries_with_the_measured_records_it_averages():
     """A fill is the mean of k donors of error variance σ², so cov(fill, Σ donors) = σ²
     (elementary statistics) and Var(measured + filled) gains 2σ² per fill, times the
     share of its donor window inside the period: a fill mid-period counts whole, one
-    half a day after the period's start (±7-day window) 7.5 / 14 of it."""
+    half a day after a period's start (±7-day window) 7.5 / 14 of it. The donors are
+    measured records, so at the record's own start the window ends there: a fill half
+    a day into the record, its period starting with the record, counts whole."""
     from dataclasses import replace
 
     from fluxpart.uncertainty import period_uncertainty
@@ -788,20 +790,20 @@ def test_fill_covaries_with_the_measured_records_it_averages():
     index = pd.date_range("2021-06-01", periods=40 * 48, freq="30min")
     n = len(index)
     measured = np.ones(n, dtype=bool)
-    measured[[24, 20 * 48]] = False
+    measured[[24, 20 * 48 + 24, 30 * 48]] = False
+    keys = (np.arange(n) >= 20 * 48).astype(int)          # days 0-19 and 20-39
     model = pd.DataFrame({"bias": [0.0, 0.0], "bias_se": [0.0, 0.0],
                           "independent_variance": [0.0, 0.0], "correlated_variance": [0.0, 0.0]},
                          index=pd.Index(["night", "day"], name="record_class"))
     inputs = replace(_filled_inputs(index, measured, model),
                      fill_window_days=np.where(measured, np.nan, 14.0),
                      fill_noise_sigma=np.full(n, 2.0))
-    out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
+    out = period_uncertainty(inputs, keys, 30)["nee_uncertainty_gapfill"]
     grams = 1800 * 12.011e-6
-    expected = 2.0 * 4.0 * (1.0 + 7.5 / 14.0)
-    assert out["nee_uncertainty_gapfill"] == pytest.approx(np.sqrt(expected) * grams)
-    without = period_uncertainty(replace(inputs, fill_noise_sigma=None),
-                                 np.zeros(n, dtype=int), 30).iloc[0]
-    assert without["nee_uncertainty_gapfill"] == 0.0
+    assert out.loc[0] == pytest.approx(np.sqrt(2.0 * 4.0) * grams)
+    assert out.loc[1] == pytest.approx(np.sqrt(2.0 * 4.0 * (7.5 / 14.0 + 1.0)) * grams)
+    without = period_uncertainty(replace(inputs, fill_noise_sigma=None), keys, 30)
+    assert (without["nee_uncertainty_gapfill"] == 0.0).all()
 
 
 def test_period_gapfill_part_without_filled_records_is_zero():
