@@ -877,7 +877,10 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
     n (so that long and short gaps weigh alike), S being the scored error sum
     and Σσ² the measurement noise of the held-out values. ``bias`` is
     ``ΣS / Σn``; its standard error ``sqrt(Σ(S − bias·n)²) / Σn`` treats gaps as
-    independent. These come from the rounds of gaps of all lengths.
+    independent. These come from the rounds of gaps of all lengths. Where the
+    noise is unknown (NaN: no random-error model), nothing is subtracted, so a
+    and b then also hold the measurement noise of the held-out values, an upper
+    bound rather than a part silently left out.
 
     Gaps longer than a day: the b·n² that fits gaps of hours reads the error of
     gaps of days to weeks 2–8 times too small on generated known-truth
@@ -926,14 +929,16 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
             continue
         bias = total.sum() / count.sum()
         centred = total - bias * count
-        excess = np.square(centred) - part["noise_variance"].to_numpy(dtype=float)
+        # unknown noise (no random-error model) is not subtracted: a and b then hold it too
+        excess = np.square(centred) - np.nan_to_num(part["noise_variance"].to_numpy(dtype=float))
         a, b = _nonnegative_line_fit(count, excess / count)
         b_long = b
         if len(long_part):
             long_count = long_part["records"].to_numpy(dtype=float)
             long_excess = np.square(long_part["error_sum"].to_numpy(dtype=float)
                                     - bias * long_count) \
-                - long_part["noise_variance"].to_numpy(dtype=float) - a * long_count
+                - np.nan_to_num(long_part["noise_variance"].to_numpy(dtype=float)) \
+                - a * long_count
             b_long = max(float(long_excess.sum() / np.square(long_count).sum()), b)
         rows[name] = {"bias": float(bias),
                       "bias_se": float(np.sqrt(np.square(centred).sum()) / count.sum()),

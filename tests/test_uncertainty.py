@@ -841,3 +841,20 @@ def test_fill_of_unknown_donor_window_adds_no_donor_covariance():
     donors = _donor_noise(inputs, np.zeros(n, dtype=int), ~measured, 30)
     assert donors[10 * 48] == pytest.approx(4.0)      # σ² = 2², the window wholly inside
     assert donors[20 * 48] == 0.0
+
+
+def test_gapfill_model_with_unknown_noise_subtracts_nothing():
+    """Without a random-error model the scored noise variance is NaN. E[(S - bias n)²] =
+    fill variance + noise variance (elementary statistics), so with the noise unknown a
+    and b are fitted to the whole (an upper bound), not left NaN; a NaN a and b_long used
+    to drop out of the period's gap-filling part as if they were 0."""
+    rng = np.random.default_rng(2)
+    short = _neighbour_rows(rng, 30, covariance=0.0).assign(noise_variance=np.nan)
+    long_rows = short.iloc[:40].assign(long=True, records=200, error_sum=30.0 * rng.standard_normal(40))
+    rows = pd.concat([short, long_rows], ignore_index=True)
+    unknown = gapfill_error_model(rows).loc["day"]
+    zero = gapfill_error_model(rows.assign(noise_variance=0.0)).loc["day"]
+    for column in ("independent_variance", "correlated_variance", "correlated_variance_long"):
+        assert np.isfinite(unknown[column])
+        assert unknown[column] == zero[column]
+    assert unknown["independent_variance"] == pytest.approx(1.0, rel=0.2)   # planted a = 1
