@@ -132,8 +132,8 @@ _CLASSES = ("uptake", "release")
 _GAP_ROUNDS = 3
 _GAP_SHARE = 0.1
 _GAP_MIN_RECORDS = 50
-#: Fills of different gaps closer than this [days] share part of their error: the
-#: first widened window of marginal distribution sampling is ±7 days (Reichstein,
+#: Fills of different gaps at most this far apart [days] share part of their error: the
+#: first window of marginal distribution sampling's driver steps is ±7 days (Reichstein,
 #: gap-filling flow chart, workshop slides 2004), so fills that close draw on
 #: overlapping donors and conditions.
 _NEIGHBOUR_DAYS = 7.0
@@ -761,13 +761,16 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
     Returns
     -------
     pandas.DataFrame
-        One row per artificial gap and record class (``night``, ``day``): ``round``,
-        ``gap``, ``records`` (held-out measured records of the class), ``length``
-        (records in the whole gap), ``error_sum`` (Σ fill − measured
-        [µmol m-2 s-1]), ``noise_variance`` (Σ σ² of the measured values
-        [(µmol m-2 s-1)²]), ``long`` (the gap belongs to a round of gaps longer
-        than one day) and ``start_day`` (its first record [days from the first
-        record]; NaN without `records_per_day`).
+        One row per artificial gap and record class (``night``, ``day``); in the
+        rounds of gaps longer than a day, one row per 7-day block of a gap (cut
+        from the gap's start) and record class: ``round``, ``gap`` (number of the
+        gap, or of the block, in the round), ``records`` (held-out measured
+        records of the class), ``length`` (records in the whole gap),
+        ``error_sum`` (Σ fill − measured [µmol m-2 s-1]), ``noise_variance``
+        (Σ σ² of the measured values [(µmol m-2 s-1)²]), ``long`` (the row
+        belongs to a round of gaps longer than one day) and ``start_day`` (the
+        gap's, or block's, first record [days from the first record]; NaN
+        without `records_per_day`).
 
     Notes
     -----
@@ -1557,8 +1560,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       * for a gap longer than a day, a·n plus b_long·m² per 7-day block of m
         records (since 0.7.0; such gaps are scored on artificial gaps of the
         site's own long lengths);
-      * c per pair of filled records of different gaps less than 7 days apart
-        in the period (since 0.7.0): fills that close draw on overlapping
+      * c per pair of filled records of one class in different gaps at most
+        7 days apart in the period (since 0.7.0): fills that close draw on overlapping
         donors under the same weather, so their errors covary;
       * 2σ² per filled record times the share of its donor window inside the
         period (:func:`_donor_noise`; since 0.7.0): a fill is the mean of the
