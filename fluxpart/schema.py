@@ -183,7 +183,7 @@ UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
                                 "scored on artificial gaps of the site's own gap lengths: "
                                 "independent and within-gap correlated parts (Richardson & "
                                 "Hollinger 2007; gaps longer than a day by 7-day blocks), the "
-                                "covariance of fills less than 7 days apart and of each fill with "
+                                "covariance of fills at most 7 days apart and of each fill with "
                                 "the measured records it averages, plus the systematic fill bias"),
     "nee_uncertainty_gapfill_bias": (CARBON, "systematic gap-filling bias of the NEE sum "
                                      "(carbon) on artificial gaps (fill minus measured; not "
@@ -280,7 +280,7 @@ RANDOM_ERROR_MODEL_COLUMNS: dict[str, tuple[str, str]] = {
                                  "every record of a gap longer than one day (b for such gaps, "
                                  "scored on artificial gaps of the site's own long gap lengths)"),
     "neighbour_covariance": ("umol2 m-4 s-2", "gap filling: error covariance of two filled "
-                             "records of different gaps less than 7 days apart"),
+                             "records of one class (night or day) in different gaps at most 7 days apart"),
     "gaps": ("1", "artificial gaps scored"),
     "long_gap_blocks": ("1", "7-day blocks of artificial gaps longer than one day scored"),
     "records": ("1", "held-out measured records scored"),

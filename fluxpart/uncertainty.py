@@ -132,8 +132,8 @@ _CLASSES = ("uptake", "release")
 _GAP_ROUNDS = 3
 _GAP_SHARE = 0.1
 _GAP_MIN_RECORDS = 50
-#: Fills of different gaps closer than this [days] share part of their error: the
-#: first widened window of marginal distribution sampling is ±7 days (Reichstein,
+#: Fills of different gaps at most this far apart [days] share part of their error: the
+#: first window of marginal distribution sampling's driver steps is ±7 days (Reichstein,
 #: gap-filling flow chart, workshop slides 2004), so fills that close draw on
 #: overlapping donors and conditions.
 _NEIGHBOUR_DAYS = 7.0
@@ -761,13 +761,16 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
     Returns
     -------
     pandas.DataFrame
-        One row per artificial gap and record class (``night``, ``day``): ``round``,
-        ``gap``, ``records`` (held-out measured records of the class), ``length``
-        (records in the whole gap), ``error_sum`` (Σ fill − measured
-        [µmol m-2 s-1]), ``noise_variance`` (Σ σ² of the measured values
-        [(µmol m-2 s-1)²]), ``long`` (the gap belongs to a round of gaps longer
-        than one day) and ``start_day`` (its first record [days from the first
-        record]; NaN without `records_per_day`).
+        One row per artificial gap and record class (``night``, ``day``); in the
+        rounds of gaps longer than a day, one row per 7-day block of a gap (cut
+        from the gap's start) and record class: ``round``, ``gap`` (number of the
+        gap, or of the block, in the round), ``records`` (held-out measured
+        records of the class), ``length`` (records in the whole gap),
+        ``error_sum`` (Σ fill − measured [µmol m-2 s-1]), ``noise_variance``
+        (Σ σ² of the measured values [(µmol m-2 s-1)²]), ``long`` (the row
+        belongs to a round of gaps longer than one day) and ``start_day`` (the
+        gap's, or block's, first record [days from the first record]; NaN
+        without `records_per_day`).
 
     Notes
     -----
@@ -877,7 +880,10 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
     n (so that long and short gaps weigh alike), S being the scored error sum
     and Σσ² the measurement noise of the held-out values. ``bias`` is
     ``ΣS / Σn``; its standard error ``sqrt(Σ(S − bias·n)²) / Σn`` treats gaps as
-    independent. These come from the rounds of gaps of all lengths.
+    independent. These come from the rounds of gaps of all lengths. Where the
+    noise is unknown (NaN: no random-error model), nothing is subtracted, so a
+    and b then also hold the measurement noise of the held-out values, an upper
+    bound rather than a part silently left out.
 
     Gaps longer than a day: the b·n² that fits gaps of hours reads the error of
     gaps of days to weeks 2–8 times too small on generated known-truth
@@ -926,14 +932,16 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
             continue
         bias = total.sum() / count.sum()
         centred = total - bias * count
-        excess = np.square(centred) - part["noise_variance"].to_numpy(dtype=float)
+        # unknown noise (no random-error model) is not subtracted: a and b then hold it too
+        excess = np.square(centred) - np.nan_to_num(part["noise_variance"].to_numpy(dtype=float))
         a, b = _nonnegative_line_fit(count, excess / count)
         b_long = b
         if len(long_part):
             long_count = long_part["records"].to_numpy(dtype=float)
             long_excess = np.square(long_part["error_sum"].to_numpy(dtype=float)
                                     - bias * long_count) \
-                - long_part["noise_variance"].to_numpy(dtype=float) - a * long_count
+                - np.nan_to_num(long_part["noise_variance"].to_numpy(dtype=float)) \
+                - a * long_count
             b_long = max(float(long_excess.sum() / np.square(long_count).sum()), b)
         rows[name] = {"bias": float(bias),
                       "bias_se": float(np.sqrt(np.square(centred).sum()) / count.sum()),
@@ -1259,9 +1267,9 @@ def _donor_noise(inputs: UncertaintyInputs, codes, filled, interval_minutes) -> 
 
     A fill is the mean of k donors, so its error holds their mean random error
     and covaries with their sum by σ² (k donors of error variance σ² each,
-    weighted 1/k). The donors are taken as spread evenly over the fill's window,
-    of which the share inside the record's period counts; 0 where the window or
-    σ is unknown.
+    weighted 1/k). The donors are taken as spread evenly over the fill's window
+    cut at the ends of the record (donors are measured records), of which the
+    share inside the record's period counts; 0 where the window or σ is unknown.
     """
     if inputs.fill_window_days is None or inputs.fill_noise_sigma is None:
         return np.zeros(len(filled))
@@ -1269,9 +1277,14 @@ def _donor_noise(inputs: UncertaintyInputs, codes, filled, interval_minutes) -> 
     step = int(interval_minutes) / _MINUTES_PER_DAY
     start = pd.Series(elapsed).groupby(codes).min().to_numpy()[codes]
     end = pd.Series(elapsed).groupby(codes).max().to_numpy()[codes] + step
-    width = np.maximum(np.nan_to_num(inputs.fill_window_days), step)
-    inside = np.minimum(elapsed + width / 2, end) - np.maximum(elapsed - width / 2, start)
-    share = np.clip(inside / width, 0.0, 1.0)
+    window = np.asarray(inputs.fill_window_days, dtype=float)
+    width = np.maximum(np.nan_to_num(window), step)
+    low, high = elapsed - width / 2, elapsed + width / 2
+    inside = np.minimum(high, end) - np.maximum(low, start)
+    # the donors are measured records, so the window ends where the record ends
+    in_record = np.minimum(high, elapsed[-1] + step) - np.maximum(low, 0.0)
+    share = np.where(np.isfinite(window),
+                     np.clip(inside / np.maximum(in_record, step), 0.0, 1.0), 0.0)
     return np.where(filled, share * np.square(np.nan_to_num(inputs.fill_noise_sigma)), 0.0)
 
 
@@ -1547,8 +1560,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       * for a gap longer than a day, a·n plus b_long·m² per 7-day block of m
         records (since 0.7.0; such gaps are scored on artificial gaps of the
         site's own long lengths);
-      * c per pair of filled records of different gaps less than 7 days apart
-        in the period (since 0.7.0): fills that close draw on overlapping
+      * c per pair of filled records of one class in different gaps at most
+        7 days apart in the period (since 0.7.0): fills that close draw on overlapping
         donors under the same weather, so their errors covary;
       * 2σ² per filled record times the share of its donor window inside the
         period (:func:`_donor_noise`; since 0.7.0): a fill is the mean of the
@@ -1678,7 +1691,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
 
         gap_id = _run_ids(filled)
         records_per_day = _MINUTES_PER_DAY // int(interval_minutes)
-        long_gap = filled & (np.bincount(gap_id[filled])[np.maximum(gap_id, 0)] > records_per_day)
+        gap_length = np.bincount(gap_id[filled], minlength=1)     # minlength: no filled record
+        long_gap = filled & (gap_length[np.maximum(gap_id, 0)] > records_per_day)
         # a gap of a day or less is one block; a longer one shares its error by 7-day blocks
         block_id = _block_ids(filled, int(_NEIGHBOUR_DAYS * records_per_day))
         donor_noise = _donor_noise(inputs, codes, filled, interval_minutes)

@@ -780,7 +780,9 @@ def test_fill_covaries_with_the_measured_records_it_averages():
     """A fill is the mean of k donors of error variance σ², so cov(fill, Σ donors) = σ²
     (elementary statistics) and Var(measured + filled) gains 2σ² per fill, times the
     share of its donor window inside the period: a fill mid-period counts whole, one
-    half a day after the period's start (±7-day window) 7.5 / 14 of it."""
+    half a day after a period's start (±7-day window) 7.5 / 14 of it. The donors are
+    measured records, so at the record's own start the window ends there: a fill half
+    a day into the record, its period starting with the record, counts whole."""
     from dataclasses import replace
 
     from fluxpart.uncertainty import period_uncertainty
@@ -788,17 +790,71 @@ def test_fill_covaries_with_the_measured_records_it_averages():
     index = pd.date_range("2021-06-01", periods=40 * 48, freq="30min")
     n = len(index)
     measured = np.ones(n, dtype=bool)
-    measured[[24, 20 * 48]] = False
+    measured[[24, 20 * 48 + 24, 30 * 48]] = False
+    keys = (np.arange(n) >= 20 * 48).astype(int)          # days 0-19 and 20-39
     model = pd.DataFrame({"bias": [0.0, 0.0], "bias_se": [0.0, 0.0],
                           "independent_variance": [0.0, 0.0], "correlated_variance": [0.0, 0.0]},
                          index=pd.Index(["night", "day"], name="record_class"))
     inputs = replace(_filled_inputs(index, measured, model),
                      fill_window_days=np.where(measured, np.nan, 14.0),
                      fill_noise_sigma=np.full(n, 2.0))
-    out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
+    out = period_uncertainty(inputs, keys, 30)["nee_uncertainty_gapfill"]
     grams = 1800 * 12.011e-6
-    expected = 2.0 * 4.0 * (1.0 + 7.5 / 14.0)
-    assert out["nee_uncertainty_gapfill"] == pytest.approx(np.sqrt(expected) * grams)
-    without = period_uncertainty(replace(inputs, fill_noise_sigma=None),
-                                 np.zeros(n, dtype=int), 30).iloc[0]
-    assert without["nee_uncertainty_gapfill"] == 0.0
+    assert out.loc[0] == pytest.approx(np.sqrt(2.0 * 4.0) * grams)
+    assert out.loc[1] == pytest.approx(np.sqrt(2.0 * 4.0 * (7.5 / 14.0 + 1.0)) * grams)
+    without = period_uncertainty(replace(inputs, fill_noise_sigma=None), keys, 30)
+    assert (without["nee_uncertainty_gapfill"] == 0.0).all()
+
+
+def test_period_gapfill_part_without_filled_records_is_zero():
+    """A period without filled records has no gap-filling error: Var(Σ over no fills) = 0
+    (elementary statistics), whatever the error model; before, the gap-length count of an
+    input without fills raised IndexError."""
+    from fluxpart.uncertainty import period_uncertainty
+
+    index = pd.date_range("2021-06-01", periods=4 * 48, freq="30min")
+    n = len(index)
+    model = pd.DataFrame({"bias": [0.1, 0.1], "bias_se": [0.05, 0.05],
+                          "independent_variance": [0.2, 0.2], "correlated_variance": [0.01, 0.01]},
+                         index=pd.Index(["night", "day"], name="record_class"))
+    out = period_uncertainty(_filled_inputs(index, np.ones(n, dtype=bool), model),
+                             index.normalize(), 30)
+    assert (out["nee_uncertainty_gapfill"] == 0.0).all()
+    assert (out["nee_uncertainty_gapfill_bias"] == 0.0).all()
+
+
+def test_fill_of_unknown_donor_window_adds_no_donor_covariance():
+    """_donor_noise's stated rule: 0 where the fill's window is unknown (NaN). Before, a
+    NaN window was read as one record wide and counted σ² whole (2σ² to the variance)."""
+    from dataclasses import replace
+
+    from fluxpart.uncertainty import _donor_noise
+
+    index = pd.date_range("2021-06-01", periods=40 * 48, freq="30min")
+    n = len(index)
+    measured = np.ones(n, dtype=bool)
+    measured[[10 * 48, 20 * 48]] = False
+    window = np.where(measured, np.nan, 14.0)
+    window[20 * 48] = np.nan
+    inputs = replace(_filled_inputs(index, measured, None), fill_window_days=window,
+                     fill_noise_sigma=np.full(n, 2.0))
+    donors = _donor_noise(inputs, np.zeros(n, dtype=int), ~measured, 30)
+    assert donors[10 * 48] == pytest.approx(4.0)      # σ² = 2², the window wholly inside
+    assert donors[20 * 48] == 0.0
+
+
+def test_gapfill_model_with_unknown_noise_subtracts_nothing():
+    """Without a random-error model the scored noise variance is NaN. E[(S - bias n)²] =
+    fill variance + noise variance (elementary statistics), so with the noise unknown a
+    and b are fitted to the whole (an upper bound), not left NaN; a NaN a and b_long used
+    to drop out of the period's gap-filling part as if they were 0."""
+    rng = np.random.default_rng(2)
+    short = _neighbour_rows(rng, 30, covariance=0.0).assign(noise_variance=np.nan)
+    long_rows = short.iloc[:40].assign(long=True, records=200, error_sum=30.0 * rng.standard_normal(40))
+    rows = pd.concat([short, long_rows], ignore_index=True)
+    unknown = gapfill_error_model(rows).loc["day"]
+    zero = gapfill_error_model(rows.assign(noise_variance=0.0)).loc["day"]
+    for column in ("independent_variance", "correlated_variance", "correlated_variance_long"):
+        assert np.isfinite(unknown[column])
+        assert unknown[column] == zero[column]
+    assert unknown["independent_variance"] == pytest.approx(1.0, rel=0.2)   # planted a = 1
