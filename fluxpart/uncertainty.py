@@ -864,8 +864,7 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
         ``correlated_variance_long`` b for gaps longer than one day and
         ``neighbour_covariance`` c [(µmol m-2 s-1)²], ``gaps`` and ``records``
         scored, ``long_gap_blocks`` (7-day blocks of the gaps longer than one day
-        scored). A class without
-        scores gets NaN.
+        scored). A class without scores gets NaN.
 
     Notes
     -----
