@@ -54,7 +54,7 @@ from .errors import (
     MissingColumnError,
     SpacingError,
 )
-from .partition import daytime, nighttime, temperature_choice
+from .partition import daytime, nighttime, respiration_form, temperature_choice
 from .site import Site
 from .variables import REQUIRED, VARIABLES
 
@@ -818,6 +818,15 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                     **_nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float))).reco
         except FluxpartError:
             other_reco = None
+    try:
+        form_reco = respiration_form.exponential_reco(
+            index, nee_measured, timeseries["nee_filled"].to_numpy(dtype=float),
+            timeseries[temperature].to_numpy(dtype=float),
+            timeseries[f"{temperature}_filled"].to_numpy(dtype=float), is_night,
+            respiration_driver=temperature,
+            **_nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float)))
+    except FluxpartError:
+        form_reco = None
     inputs = uncertainty.record_inputs(
         index, runs["central"], runs if len(runs) > 1 else {}, measured, noise, is_night,
         timeseries[f"{temperature}_filled"].to_numpy(dtype=float), night, day.parameters,
@@ -825,7 +834,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         nee_measured=nee_measured,
         fill_window_days=timeseries["nee_fill_window_days"].to_numpy(dtype=float),
         fill_noise_sigma=None if error_model is None else error_model.predict(
-            timeseries["nee_filled"].to_numpy(dtype=float)))
+            timeseries["nee_filled"].to_numpy(dtype=float)), other_form_reco=form_reco)
     percentiles = config.ustar_scenarios
     tables = []
     for table, keys in ((daily, index.normalize()),

@@ -16,6 +16,7 @@ LASSLOP_VPD0_HPA = 10.0
 
 __all__ = [
     "LASSLOP_VPD0_HPA",
+    "exponential_equivalent_temperature",
     "light_response",
     "light_response_derivatives",
     "lloyd_taylor",
@@ -70,6 +71,48 @@ def lloyd_taylor(temperature, rref, e0, *, tref_kelvin=LLOYD_TAYLOR_TREF_KELVIN,
     with np.errstate(over="ignore", invalid="ignore"):
         out = np.asarray(rref, dtype=float) * np.exp(np.asarray(e0, dtype=float) * term)
     return np.where(kelvin > t0_kelvin, out, np.nan)
+
+
+def exponential_equivalent_temperature(temperature, *, tref_kelvin=LLOYD_TAYLOR_TREF_KELVIN,
+                                       t0_kelvin=LLOYD_TAYLOR_T0_KELVIN):
+    """Temperature T* at which Lloyd–Taylor gives an exponential (Q10) response of T.
+
+    Parameters
+    ----------
+    temperature : array_like
+        Temperature T [°C]; below Tref + 2 (Tref − T0) (122 °C by default).
+    tref_kelvin, t0_kelvin : float, optional
+        Lloyd–Taylor's reference temperature and T0 [K], as in :func:`lloyd_taylor`.
+
+    Returns
+    -------
+    numpy.ndarray
+        T* [°C], such that ``lloyd_taylor(T*, Rref, E0) = Rref exp(k (T − Tref))``
+        with k = E0 / (2 D²), D = Tref − T0: the exponential (constant-Q10) form,
+        Q10 = exp(10 k). NaN where T is out of range.
+
+    Notes
+    -----
+    Lloyd–Taylor's exponent is E0 (1/D − 1/(T − T0)). Setting
+    1/(T* − T0) = 1/D − (T − Tref)/(2 D²), i.e. T* = T0 + 2D² / (2D − (T − Tref)),
+    makes it E0 (T − Tref)/(2 D²), linear in T. T* = Tref at T = Tref and
+    dT*/dT = 1/2 there; with D = 56.02 K, T from −60 to +60 °C maps to T* from
+    −11.5 to +55.2 °C. Fitting Lloyd–Taylor to T* is therefore fitting the
+    exponential form with the same code, E0 standing for 2D²·k: E0 from 60 to
+    900 K spans Q10 from 1.10 to 4.20, the sensitivity d ln R / dT = E0 / D² that
+    Lloyd–Taylor's own E0 range of 30–450 K has at Tref, times 10 in the exponent.
+
+    References
+    ----------
+    Lloyd, J. & Taylor, J. A. (1994). Functional Ecology 8:315–323 (eq. 11, and the
+    exponential Q10 form it is compared with). doi:10.2307/2389824
+    """
+    kelvin = np.asarray(temperature, dtype=float) + KELVIN_OFFSET
+    span = tref_kelvin - t0_kelvin
+    denominator = 2.0 * span - (kelvin - tref_kelvin)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        star = t0_kelvin + 2.0 * span**2 / denominator
+    return np.where(denominator > 0, star - KELVIN_OFFSET, np.nan)
 
 
 def lloyd_taylor_derivatives(temperature, rref, e0, *, tref_kelvin=LLOYD_TAYLOR_TREF_KELVIN,

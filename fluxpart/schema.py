@@ -215,6 +215,12 @@ UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
                                             "weight the night data give the other temperature "
                                             "(BIC); in the totals of all partitioned fluxes "
                                             "(NaN without soil temperature)"),
+    "reco_uncertainty_respiration_form": (CARBON, "1 sigma: structural error of Reco and GPP "
+                                          "(carbon) from the form of the respiration response: "
+                                          "|nighttime Reco with a constant Q10 - nighttime Reco "
+                                          "(Lloyd-Taylor)| x sqrt(w), w the weight the night "
+                                          "data give the constant Q10 (BIC); in the totals of "
+                                          "all partitioned fluxes (NaN where the Q10 fit fails)"),
     "reco_uncertainty_partitioning": (CARBON, "1 sigma: structural error of Reco (carbon): "
                                       "the part of d = daytime - nighttime the methods' "
                                       "parameter parts do not explain, sqrt(max(d^2 - "

@@ -144,12 +144,12 @@ CONFIDENCE = 0.95
 CALIBRATION_CHECK = (
     "fluxpart 0.7.0 on 70 generated known-truth site-years of seven invented archetypes "
     "(35 held out while most rules were chosen): the stated 95 % intervals contained the true "
-    "annual sum in 97 % (NEE), 99 % and 97 % (nighttime GPP and Reco) and 93 % and 90 % "
+    "annual sum in 97 % (NEE), 99 % and 97 % (nighttime GPP and Reco) and 94 % and 90 % "
     "(daytime GPP and Reco) of site-years; on 56 site-years of seven further invented "
-    "climates in 98 % (NEE), 93 % and 95 % (nighttime GPP and Reco) and 89 % and 93 % "
+    "climates in 98 % (NEE), 93 % and 95 % (nighttime GPP and Reco) and 89 % and 95 % "
     "(daytime GPP and Reco); on 42 site-years whose fluxes follow other functional forms "
-    "(Q10 respiration, temperature-optimum photosynthesis, correlated errors) in 95 %, 93 % "
-    "and 98 %, and 88 % and 86 %; monthly NEE sums +/- 1.96 sigma in 95 % of 840 generated "
+    "(Q10 respiration, temperature-optimum photosynthesis, correlated errors) in 95 %, 98 % "
+    "and 100 %, and 98 % and 90 %; monthly NEE sums +/- 1.96 sigma in 95 % of 840 generated "
     "months; a real site can differ from any generator")
 #: What the stated intervals do not contain (column descriptions, manifest, README).
 _FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
@@ -1376,6 +1376,14 @@ class UncertaintyInputs:
         and the random error the error model gives at the filled value
         [µmol m-2 s-1]: the covariance of fills with the measured records they
         average (:func:`period_uncertainty`); None: not counted.
+    form_delta : numpy.ndarray or None
+        Nighttime Reco with the exponential (constant-Q10) form minus the central
+        Lloyd–Taylor Reco [µmol m-2 s-1]
+        (:func:`fluxpart.partition.respiration_form.exponential_reco`); None: not
+        counted.
+    form_weight : float
+        Probability that the exponential form describes the night data better
+        (:func:`driver_weight`) [1].
     """
 
     measured: np.ndarray
@@ -1397,6 +1405,8 @@ class UncertaintyInputs:
     day_interpolation_sd: np.ndarray | None = None
     fill_window_days: np.ndarray | None = None
     fill_noise_sigma: np.ndarray | None = None
+    form_delta: np.ndarray | None = None
+    form_weight: float = 0.0
 
 
 def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
@@ -1452,7 +1462,7 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
                   temperature, nighttime_result, daytime_parameters, gapfill_model, *,
                   rref_window_days=4.0, other_driver_reco=None,
                   nee_measured=None, fill_window_days=None,
-                  fill_noise_sigma=None) -> UncertaintyInputs:
+                  fill_noise_sigma=None, other_form_reco=None) -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -1484,7 +1494,11 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         Nighttime Reco computed with the other respiration temperature [µmol m-2 s-1].
     nee_measured : array_like, optional
         Measured NEE [µmol m-2 s-1], for :func:`driver_weight` (needed with
-        `other_driver_reco`).
+        `other_driver_reco` or `other_form_reco`).
+    fill_window_days, fill_noise_sigma : array_like, optional
+        See :class:`UncertaintyInputs`.
+    other_form_reco : array_like, optional
+        Nighttime Reco with the exponential (constant-Q10) form [µmol m-2 s-1].
 
     Returns
     -------
@@ -1513,6 +1527,10 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         day_interval=day_interval, day_interpolation_sd=day_interpolation,
         fill_window_days=None if fill_window_days is None else np.asarray(fill_window_days, float),
         fill_noise_sigma=None if fill_noise_sigma is None else np.asarray(fill_noise_sigma, float),
+        form_delta=None if other_form_reco is None else
+        np.asarray(other_form_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
+        form_weight=0.0 if other_form_reco is None else driver_weight(
+            nee_measured, is_night, fluxes["reco_nighttime"].to_numpy(float), other_form_reco),
         driver_delta=None if other_driver_reco is None else
         np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
         driver_weight=0.0 if other_driver_reco is None else driver_weight(
@@ -1617,6 +1635,16 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       choice moves both alike and the method difference cannot reveal it; the
       part is added to all four partitioned fluxes (GPP moves with Reco, NEE
       being fixed by the data).
+    - respiration form (structural, since 0.7.0): √w · |Σ(Reco(constant Q10) −
+      Reco)| of the nighttime method refitted with the exponential form
+      (:func:`fluxpart.partition.respiration_form.exponential_reco`), w the
+      weight the night data give it (:func:`driver_weight`). Both methods use
+      Lloyd–Taylor, so a respiration that keeps one Q10 over a wide range
+      moves both alike; added to all four partitioned fluxes. On the 42
+      other-physics site-years (Q10 truth) it raised the 95 % coverage of
+      nighttime GPP / Reco from 92.9 / 97.6 % to 97.6 / 100 % and of daytime
+      GPP / Reco from 88.1 / 85.7 % to 97.6 / 90.5 %; on the 126 Lloyd–Taylor
+      site-years mean widths grew by about 1 %.
     - partitioning (structural): for GPP and for Reco, the part of the
       difference d = daytime − nighttime that the methods' own quantified parts
       do not explain, added to both methods: if each method's error is its
@@ -1777,6 +1805,12 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     else:
         driver = pd.Series(np.nan, index=index)
     out["reco_uncertainty_temperature_driver"] = driver
+    if inputs.form_delta is not None:
+        form = per_period(np.nan_to_num(inputs.form_delta)).abs() * factor \
+            * np.sqrt(inputs.form_weight)
+    else:
+        form = pd.Series(np.nan, index=index)
+    out["reco_uncertainty_respiration_form"] = form
 
     def total(*parts):
         table = pd.concat([pd.Series(p, index=index) for p in parts], axis=1)
@@ -1785,14 +1819,14 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     nee_parts = [out["nee_uncertainty_random"], out["nee_uncertainty_gapfill"], ustar["nee"]]
     out["nee_uncertainty_total"] = total(*nee_parts)
     out["reco_nighttime_uncertainty_total"] = total(
-        ustar["reco_nighttime"], parameters["reco_nighttime"], method["reco"], driver)
+        ustar["reco_nighttime"], parameters["reco_nighttime"], method["reco"], driver, form)
     out["gpp_nighttime_uncertainty_total"] = total(
-        ustar["gpp_nighttime"], parameters["gpp_nighttime"], method["gpp"], driver,
+        ustar["gpp_nighttime"], parameters["gpp_nighttime"], method["gpp"], driver, form,
         out["gpp_nighttime_uncertainty_random"], out["gpp_nighttime_uncertainty_gapfill"])
     out["reco_daytime_uncertainty_total"] = total(
-        ustar["reco_daytime"], parameters["reco_daytime"], method["reco"], driver)
+        ustar["reco_daytime"], parameters["reco_daytime"], method["reco"], driver, form)
     out["gpp_daytime_uncertainty_total"] = total(
-        ustar["gpp_daytime"], parameters["gpp_daytime"], method["gpp"], driver)
+        ustar["gpp_daytime"], parameters["gpp_daytime"], method["gpp"], driver, form)
     for flux in _FLUXES:
         out[f"{flux}_sigma"] = out[f"{flux}_uncertainty_total"].where(carbon[flux].notna())
     return pd.DataFrame(out, index=index)

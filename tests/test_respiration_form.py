@@ -1,0 +1,79 @@
+"""The exponential (constant-Q10) respiration form and its structural part.
+
+Sources: Lloyd & Taylor (1994), Functional Ecology 8:315-323, eq. 11 (written out here
+independently of fluxpart); the exponential Q10 form R = Rref Q10^((T - Tref)/10) is the
+textbook van 't Hoff form (common practice). Data below are invented known-truth series.
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.partition.nighttime import partition_nighttime
+from fluxpart.partition.respiration_form import exponential_reco
+from fluxpart.responses import exponential_equivalent_temperature, lloyd_taylor
+from fluxpart.uncertainty import UncertaintyInputs, driver_weight, period_uncertainty
+
+SPAN = 283.15 - 227.13            # Tref - T0 of Lloyd & Taylor (1994) [K]
+
+
+def test_lloyd_taylor_at_the_equivalent_temperature_is_exponential():
+    """LT(T*) = Rref exp(E0 (T - 10)/(2 D²)) exactly, T* = Tref at Tref, and E0 of 60
+    and 900 K give Q10 = exp(10 E0 / (2 D²)) = 1.10 and 4.20 (eq. 11 written out)."""
+    temperature = np.linspace(-60.0, 60.0, 121)
+    star = exponential_equivalent_temperature(temperature)
+    for e0 in (60.0, 300.0, 900.0):
+        expected = 2.0 * np.exp(e0 * (temperature - 10.0) / (2.0 * SPAN**2))
+        np.testing.assert_allclose(lloyd_taylor(star, 2.0, e0), expected, rtol=1e-12)
+    assert exponential_equivalent_temperature(10.0) == pytest.approx(10.0)
+    q10 = [lloyd_taylor(exponential_equivalent_temperature(20.0), 1.0, e0)
+           / lloyd_taylor(exponential_equivalent_temperature(10.0), 1.0, e0) for e0 in (60, 900)]
+    assert q10 == pytest.approx([1.10, 4.20], abs=0.006)
+    assert np.isnan(exponential_equivalent_temperature(10.0 + 2 * SPAN + 1.0))
+
+
+def _q10_year(rng, q10=3.0):
+    """Invented site-year: night respiration 2 Q10^((T - 10)/10) over -25..+25 °C."""
+    index = pd.date_range("2021-01-01", "2021-12-31 23:30", freq="30min")
+    days = np.asarray((index - index[0]) / pd.Timedelta(days=1))
+    hour = index.hour.to_numpy() + index.minute.to_numpy() / 60.0
+    temperature = (0.0 - 18.0 * np.cos(2 * np.pi * (days - 20.0) / 365.25)
+                   + 5.0 * np.sin(2 * np.pi * (hour - 9.0) / 24.0))
+    night = (hour < 6.0) | (hour >= 19.0)
+    reco = 2.0 * q10 ** ((temperature - 10.0) / 10.0)
+    filled = reco - np.where(night, 0.0, 6.0 * np.clip(np.sin(np.pi * (hour - 6) / 13), 0, None)) \
+        + rng.normal(0.0, 0.2, len(index))
+    measured = np.where(night & (rng.random(len(index)) < 0.6), filled, np.nan)
+    return index, measured, filled, temperature, night, reco
+
+
+def test_exponential_fit_recovers_a_constant_q10_that_lloyd_taylor_misses():
+    """Known truth (invented): Q10 = 3 over -25..+25 °C. The exponential refit
+    recovers annual Reco within 3 %, and the night data give it the weight (BIC)."""
+    rng = np.random.default_rng(3)
+    index, measured, filled, temperature, night, reco = _q10_year(rng)
+    central = partition_nighttime(index, measured, filled, temperature, temperature, night)
+    other = exponential_reco(index, measured, filled, temperature, temperature, night)
+    assert other.sum() == pytest.approx(reco.sum(), rel=0.03)
+    assert abs(central.reco.sum() / reco.sum() - 1) > abs(other.sum() / reco.sum() - 1)
+    assert driver_weight(measured, night, central.reco, other) > 0.9
+
+
+def test_form_part_is_weighted_difference_in_every_partitioned_total():
+    """sqrt(w) |Σ ΔReco| (as for the temperature driver), in all four totals."""
+    index = pd.date_range("2021-06-01", periods=2 * 48, freq="30min")
+    n = len(index)
+    zeros = np.zeros(n)
+    fluxes = pd.DataFrame({name: np.ones(n) for name in (
+        "nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")}, index=index)
+    inputs = UncertaintyInputs(
+        measured=np.ones(n, dtype=bool), noise_sigma=zeros, is_night=index.hour < 6,
+        fluxes=fluxes, runs={}, gapfill_model=None, e0_delta=zeros,
+        night_window=np.zeros(n, dtype=int), night_relative_se=np.full(n, np.nan),
+        day_window=np.zeros(n, dtype=int), day_relative_se=np.full(n, np.nan),
+        form_delta=np.full(n, 0.5), form_weight=0.36)
+    out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
+    expected = 0.6 * 0.5 * n * 1800 * 12.011e-6
+    assert out["reco_uncertainty_respiration_form"] == pytest.approx(expected)
+    for flux in ("gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
+        assert out[f"{flux}_uncertainty_total"] >= expected * (1 - 1e-12)
