@@ -309,8 +309,10 @@ def _reading_notes(combined_used: bool) -> str:
         "grams of carbon per square metre (g C m-2); t CO2 ha-1 = g C m-2 × "
         f"{CO2_MOLAR_MASS}/{CARBON_MOLAR_MASS} × 0.01.",
         "The uncertainty covers the parts the run computed and wrote beside each total (the "
-        "random error, gap filling with its bias on artificial gaps, the u* threshold, fitted "
-        "parameters (also Rref between its windows) and the choice of partitioning method, as "
+        "random error, gap filling with its bias on artificial gaps and the correlation of "
+        "fills within a week and with the records they average, the u* threshold, fitted "
+        "parameters (also Rref between its windows), the choice of partitioning method, of "
+        "respiration temperature and of respiration form (Lloyd–Taylor or a constant Q10), as "
         "far as each applies to the "
         "flux); systematic errors of the measurement itself (energy-balance closure, "
         "advection, storage, footprint) are not included (the manifest lists every part "
