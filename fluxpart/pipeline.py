@@ -801,32 +801,32 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                                 "reco_nighttime": n.reco, "gpp_daytime": d.gpp,
                                 "reco_daytime": d.reco}, index=index)
             for name, (_, _, filled, n, d) in outcomes.items()}
+    nee_filled = timeseries["nee_filled"].to_numpy(dtype=float)
+    settings = _nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float))
+
+    def refit(fit, driver):
+        """Reco of `fit` (partition_nighttime's arguments) on `driver`; None if it fails."""
+        try:
+            return fit(index, nee_measured, nee_filled, timeseries[driver].to_numpy(dtype=float),
+                       timeseries[f"{driver}_filled"].to_numpy(dtype=float), is_night,
+                       respiration_driver=driver, **settings)
+        except FluxpartError:
+            return None
+
     other = {"tair": "tsoil", "tsoil": "tair"}[temperature]
     other_reco = None
     if f"{other}_filled" in timeseries.columns and other in timeseries.columns:
-        try:
-            if other in night_fits:
+        if other in night_fits:    # the temperature choice fitted it on the central NEE
+            try:
                 other_reco = nighttime.apply_fit(
-                    night_fits[other], timeseries["nee_filled"].to_numpy(dtype=float),
+                    night_fits[other], nee_filled,
                     timeseries[f"{other}_filled"].to_numpy(dtype=float)).reco
-            else:
-                other_reco = nighttime.partition_nighttime(
-                    index, nee_measured, timeseries["nee_filled"].to_numpy(dtype=float),
-                    timeseries[other].to_numpy(dtype=float),
-                    timeseries[f"{other}_filled"].to_numpy(dtype=float), is_night,
-                    respiration_driver=other,
-                    **_nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float))).reco
-        except FluxpartError:
-            other_reco = None
-    try:
-        form_reco = respiration_form.exponential_reco(
-            index, nee_measured, timeseries["nee_filled"].to_numpy(dtype=float),
-            timeseries[temperature].to_numpy(dtype=float),
-            timeseries[f"{temperature}_filled"].to_numpy(dtype=float), is_night,
-            respiration_driver=temperature,
-            **_nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float)))
-    except FluxpartError:
-        form_reco = None
+            except FluxpartError:
+                other_reco = None
+        else:
+            other_reco = refit(lambda *args, **kwargs: nighttime.partition_nighttime(
+                *args, **kwargs).reco, other)
+    form_reco = refit(respiration_form.exponential_reco, temperature)
     inputs = uncertainty.record_inputs(
         index, runs["central"], runs if len(runs) > 1 else {}, measured, noise, is_night,
         timeseries[f"{temperature}_filled"].to_numpy(dtype=float), night, day.parameters,
