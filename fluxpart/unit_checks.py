@@ -314,8 +314,7 @@ def _reversed_sign(nee: np.ndarray, night: np.ndarray, active: np.ndarray):
     return night_median, low, high
 
 
-def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, potential=None,
-                      stamps=None):
+def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, potential=None):
     """NEE with the opposite sign (uptake positive, e.g. NEP mapped as ``nee``).
 
     Two facts of the trade decide it together: at night there is no photosynthesis,
@@ -327,12 +326,8 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
     5th percentile), by more than :data:`_SIGN_MIN_RELEASE`, has both backwards.
     Either alone happens on real towers (cold open-path nights or a desert can show
     small negative night medians; a dormant season shows daytime release), so one
-    alone never refuses. Where the whole record passes, the same rule is applied to
-    each calendar month of `stamps` (the interval starts, optional): months with both
-    backwards beside months without are a sign that changed within the record (a
-    logger program or export changed), warned about with the months named, since a
-    month holds fewer records to tell by. Returns (refusal, warning); both None when
-    it cannot tell or finds nothing.
+    alone never refuses. Returns (refusal, warning); both None when it cannot tell or
+    finds nothing (:func:`mixup_messages` then applies the rule month by month).
     """
     nee = converted.get("nee")
     if nee is None:
@@ -349,12 +344,7 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
     finite = np.isfinite(nee)
     found = _reversed_sign(nee, night, active)
     if found is None:
-        months = _months_refused(
-            lambda part, sun: _nee_sign_message(part, columns, interval_minutes, sun)[0],
-            converted, potential, stamps)
-        return None, (_changed_within("nee", columns["nee"], months, "NEE with the opposite "
-                                      "sign (negative night median, uptake tail shorter than "
-                                      "the release tail)") if months else None)
+        return None, None
     night_median, low, high = found
     found = (f"night values have a median of {night_median:.3g} µmol m-2 s-1 (respiration, "
              "a release, is positive) and warm, bright records have 95th and 5th percentiles "
@@ -554,7 +544,8 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
     missing : tuple, optional
         Missing-value codes in force (a declared 0 turns the zero-code check off).
     stamps : pandas.DatetimeIndex, optional
-        Interval starts of the records; enables the month-by-month NEE sign check.
+        Interval starts of the records; enables the month-by-month checks (NEE unit
+        and sign, RH as a fraction, Rg unit).
 
     Returns
     -------
@@ -583,12 +574,20 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 warnings.append(_changed_within("nee", columns["nee"], months, "a flux 22.7 "
                                                 "times too small (mg CO2 m-2 s-1)"))
         if "nee" not in refusals:
-            refuse, warn = _nee_sign_message(converted, columns, interval_minutes, potential,
-                                             stamps)
+            refuse, warn = _nee_sign_message(converted, columns, interval_minutes, potential)
             if refuse:
                 refusals["nee"] = refuse
             if warn:
                 warnings.append(warn)
+            # a sign that changed within the record: months with both backwards (a month
+            # holds fewer records to tell by, so this only warns)
+            months = [] if refuse or warn else _months_refused(
+                lambda part, sun: _nee_sign_message(part, columns, interval_minutes, sun)[0],
+                converted, potential, stamps)
+            if months:
+                warnings.append(_changed_within("nee", columns["nee"], months, "NEE with the "
+                                                "opposite sign (negative night median, uptake "
+                                                "tail shorter than the release tail)"))
         refuse = _tair_message(converted, units, columns, interval_minutes)
         if refuse:
             refusals["tair"] = refuse
