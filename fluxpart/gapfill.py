@@ -110,6 +110,7 @@ __all__ = [
     "METHOD_RADIATION",
     "METHOD_UNFILLED",
     "QUALITY_A",
+    "QUALITY_A_WINDOW_DAYS",
     "QUALITY_B",
     "QUALITY_C",
     "QUALITY_INTERPOLATED",
@@ -160,6 +161,8 @@ DONOR_RULES = ("separate_day_night", "similar_conditions_only")
 #: workshop slides 2004. Every wider window is C (the flow chart's widening loop (m)).
 _A_ALL_DRIVERS_DAYS, _A_DIURNAL_DAYS = 28.0, 1.0
 _B_RADIATION_DAYS, _B_DIURNAL_DAYS = 14.0, 3.0
+#: The largest window [days] of quality A, for other modules (preflight names gaps wider).
+QUALITY_A_WINDOW_DAYS = _A_ALL_DRIVERS_DAYS
 
 #: Defaults: Reichstein et al. (2005), appendix.
 _RG_TOLERANCE = 50.0  # [W m-2]

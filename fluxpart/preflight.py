@@ -47,7 +47,8 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from .gapfill import _A_ALL_DRIVERS_DAYS
+from .gapfill import QUALITY_A_WINDOW_DAYS
+from .uncertainty import gap_runs
 from .ustar import assign_seasons
 
 __all__ = ["Finding", "RG_ABOVE_POTENTIAL_SHARE", "preflight"]
@@ -208,21 +209,20 @@ def _long_gaps(index: pd.DatetimeIndex, nee: np.ndarray, interval_minutes: float
     month missing reads as a complete year.
     """
     missing = ~np.isfinite(nee)
-    if not missing.any() or missing.all():
+    if missing.all():
         return []
-    edges = np.diff(np.concatenate([[0], missing.astype(np.int8), [0]]))
-    starts, ends = np.flatnonzero(edges == 1), np.flatnonzero(edges == -1)
-    lengths = (ends - starts) * interval_minutes / 1440.0
-    long = np.flatnonzero(lengths > _A_ALL_DRIVERS_DAYS)
+    starts, records = gap_runs(missing)
+    lengths = records * interval_minutes / 1440.0
+    long = np.flatnonzero(lengths > QUALITY_A_WINDOW_DAYS)
     if long.size == 0:
         return []
     longest = long[np.argmax(lengths[long])]
-    first, last = index[starts[longest]], index[ends[longest] - 1]
+    first, last = index[starts[longest]], index[starts[longest] + records[longest] - 1]
     return [Finding("gap filling", (
-        f"{long.size} gap(s) of measured NEE longer than {_A_ALL_DRIVERS_DAYS:g} days "
+        f"{long.size} gap(s) of measured NEE longer than {QUALITY_A_WINDOW_DAYS:g} days "
         f"({lengths[long].sum():.1f} days in all), the longest {lengths[longest]:.1f} days "
         f"({first:%Y-%m-%d %H:%M} .. {last:%Y-%m-%d %H:%M}): its middle lies more than "
-        f"{_A_ALL_DRIVERS_DAYS / 2:g} days from any measured NEE and is filled from other "
+        f"{QUALITY_A_WINDOW_DAYS / 2:g} days from any measured NEE and is filled from other "
         "weeks or seasons (quality C), so sums over it are weak evidence (share_filled_c "
         "in annual.parquet)"), False)]
 
