@@ -155,6 +155,11 @@ QUALITY_NAMES: dict[int, str] = {
 #: Donor rules: which measured records may fill a gap.
 DONOR_RULES = ("separate_day_night", "similar_conditions_only")
 
+#: Radiation windows of the similarity steps: ``"centred"`` keeps a day gap's window
+#: centred on its own Rg where the fixed tolerance would reach below the lowest Rg a
+#: day record has; ``"fixed"`` is ±tolerance everywhere, as published.
+RG_WINDOWS = ("centred", "fixed")
+
 #: Largest full window [days] of quality A: the all-driver step up to ±14 days and
 #: the diurnal course on the same day; of quality B: the radiation-only step at ±7
 #: days and the diurnal course at ±1 day. Reichstein, gap-filling flow chart,
@@ -166,6 +171,8 @@ QUALITY_A_WINDOW_DAYS = _A_ALL_DRIVERS_DAYS
 
 #: Defaults: Reichstein et al. (2005), appendix.
 _RG_TOLERANCE = 50.0  # [W m-2]
+#: Rg below which a measured record is night [W m-2], as solar.night_mask's default.
+_NIGHT_RG_THRESHOLD = 10.0
 _TAIR_TOLERANCE = 2.5  # [°C]
 _VPD_TOLERANCE = 5.0  # [hPa]
 #: Largest half-width of any window [days]: the driver steps widen up to ±140 days,
@@ -482,8 +489,8 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
     time_low = np.searchsorted(usable, gaps - half_width, side="left")
     time_high = np.searchsorted(usable, gaps + half_width, side="right")
     usable_values = values[usable]
-    lowers = [driver[gaps] - tolerance for driver, tolerance in conditions]
-    uppers = [driver[gaps] + tolerance for driver, tolerance in conditions]
+    lowers = [driver[gaps] - _at(tolerance, gaps) for driver, tolerance in conditions]
+    uppers = [driver[gaps] + _at(tolerance, gaps) for driver, tolerance in conditions]
     for a, b in zip(starts, ends, strict=True):
         p, q = time_low[a], time_high[b - 1]
         if p == q:
@@ -516,6 +523,59 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
         count[rows] = n_found
         spread[rows] = np.sqrt(np.add.reduceat(deviation, run_starts) / n_found)
     return mean, count, spread
+
+
+def _at(tolerance, gaps):
+    """The tolerance of each gap: a scalar as it is, a per-record array at `gaps`."""
+    return tolerance[gaps] if np.ndim(tolerance) else tolerance
+
+
+def centred_rg_tolerance(rg, is_night, tolerance, night_threshold) -> np.ndarray:
+    """Per-record Rg tolerance that keeps a day record's radiation window centred on it.
+
+    Parameters
+    ----------
+    rg : array_like
+        Global radiation of each record [W m-2] (NaN where unavailable).
+    is_night : array_like of bool
+        True for night records.
+    tolerance : float
+        The similarity tolerance of Rg [W m-2], e.g. 50 (Reichstein et al. 2005).
+    night_threshold : float
+        Rg below which a measured record is night [W m-2]
+        (:func:`fluxpart.solar.night_mask`): the lowest Rg a day record has.
+
+    Returns
+    -------
+    numpy.ndarray
+        ``min(tolerance, max(Rg - night_threshold, night_threshold))`` for day
+        records, `tolerance` for night records [W m-2].
+
+    Notes
+    -----
+    Day gaps are filled from day records, whose Rg is at least `night_threshold`.
+    A day gap at Rg = 20 W m-2 with the fixed ±50 W m-2 window takes records from
+    10 to 70 W m-2: its donors sit on average at about twice its own light, on the
+    steepest part of the light response, so dawn and dusk fills take up too much
+    CO2 (on 12 generated site-years of :mod:`fluxpart.scenarios`, day gaps at Rg
+    10–100 W m-2 were filled 0.003–0.008 µmol m-2 s-1 per record too negative on
+    average, −1.5 g C m-2 a year). Shrinking the tolerance to the distance from
+    the class's lower edge makes the window symmetric about the gap's own Rg, so a
+    light response that is straight over the window is averaged without bias.
+    The tolerance never falls below `night_threshold` itself: the radiation level
+    the night mask already trusts Rg to resolve (pyranometer zero offsets are of
+    that order, ISO 9060 (m)). Night gaps keep the fixed window (their donors
+    are night records, with Rg near 0 on both sides).
+
+    References
+    ----------
+    Reichstein, M., et al. (2005). Global Change Biology 11, 1424–1439, appendix A.
+    doi:10.1111/j.1365-2486.2005.001002.x
+    """
+    rg = np.asarray(rg, dtype=float)
+    centred = np.minimum(tolerance, np.maximum(rg - night_threshold, night_threshold))
+    centred = np.where(np.isnan(centred), tolerance, centred)
+    return np.where(np.asarray(is_night, dtype=bool), float(tolerance), centred)
 
 
 def _diurnal_course_pass(values, measured, gaps, half_width_days, per_day, diurnal_records):
@@ -704,7 +764,8 @@ def _check_count(name: str, value) -> int:
 def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day_night",
                   rg_tolerance=_RG_TOLERANCE, tair_tolerance=_TAIR_TOLERANCE,
                   vpd_tolerance=_VPD_TOLERANCE, max_window_days=_MAX_WINDOW_DAYS,
-                  min_donors=_MIN_DONORS, gaps=None) -> pd.DataFrame:
+                  min_donors=_MIN_DONORS, gaps=None, rg_window="centred",
+                  night_rg_threshold=_NIGHT_RG_THRESHOLD) -> pd.DataFrame:
     """Fill the gaps of a flux series by marginal distribution sampling.
 
     Parameters
@@ -750,6 +811,16 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         depends only on the measured records and its own drivers, so the records
         filled are the same as in a fill of every gap (scoring artificial gaps
         needs only the held-out records).
+    rg_window : {"centred", "fixed"}
+        The radiation window of the similarity steps. ``"centred"`` (default):
+        with separate day and night donors, a day gap's Rg tolerance shrinks to
+        keep its window centred on its own Rg above the lowest Rg of a day record
+        (:func:`centred_rg_tolerance`), so dawn and dusk gaps are not filled from
+        brighter records; ``"fixed"``: ±`rg_tolerance` for every gap, as
+        published. Under the single donor rule the window is always fixed.
+    night_rg_threshold : float
+        Rg below which a measured record is night [W m-2]; default 10, as
+        :func:`fluxpart.solar.night_mask`. Used by ``rg_window="centred"``.
 
     Returns
     -------
@@ -806,6 +877,12 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
     _check_setting("max_window_days", max_window_days, allow_zero=True, allow_inf=True)
     min_donors = _check_count("gapfill_min_donors", min_donors)
     night = _check_donors(donors, is_night, index)
+    if rg_window not in RG_WINDOWS:
+        raise ConfigError(f"[processing] gapfill_rg_window = {rg_window!r}: expected one of "
+                          f"{', '.join(repr(rule) for rule in RG_WINDOWS)}")
+    if rg_window == "centred" and night is not None:
+        threshold = _check_setting("night_rg_threshold", night_rg_threshold)
+        tolerances[0] = centred_rg_tolerance(rg, night, tolerances[0], threshold)
     wanted = None
     if gaps is not None:
         wanted = np.asarray(gaps)

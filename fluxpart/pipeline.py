@@ -472,7 +472,8 @@ def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None):
         nee_measured, conditions, index, is_night=is_night, donors=config.gapfill_donors,
         rg_tolerance=config.rg_tolerance, tair_tolerance=config.tair_tolerance,
         vpd_tolerance=config.vpd_tolerance, max_window_days=config.gapfill_max_window_days,
-        min_donors=config.gapfill_min_donors, gaps=gaps)
+        min_donors=config.gapfill_min_donors, gaps=gaps, rg_window=config.gapfill_rg_window,
+        night_rg_threshold=config.night_rg_threshold)
 
 
 def _nighttime_settings(config, rg) -> dict:

@@ -94,6 +94,8 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_condition,
                 lo, hi = max(0, t - k * per_day), min(n, t + k * per_day + 1)
                 ok = donor[lo:hi].copy()
                 for driver, tolerance in pairs:
+                    if callable(tolerance):  # a tolerance that depends on the gap
+                        tolerance = tolerance(t)
                     # "within ±tolerance of the value at t", bounds in float64
                     ok &= driver[lo:hi] >= driver[t] - tolerance
                     ok &= driver[lo:hi] <= driver[t] + tolerance
@@ -118,17 +120,30 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_condition,
 
 def oracle_fill_marginal(target, drivers, index, *, is_night=None, rg_tolerance=50.0,
                          tair_tolerance=2.5, vpd_tolerance=5.0, max_window_days=140.0,
-                         min_donors=3):
+                         min_donors=3, rg_window="centred", night_rg_threshold=10.0):
     """Oracle counterpart of :func:`fluxpart.gapfill.fill_marginal` (same columns).
 
     ``is_night`` None is the single rule (``donors="similar_conditions_only"``).
+    With ``rg_window="centred"`` and separate classes, a day gap's radiation window
+    reaches down to the night threshold and no further, so that it stays centred on
+    the gap's own Rg, but it is never narrower than ±night_rg_threshold nor wider than
+    ±rg_tolerance.
     """
     minutes = _spacing_minutes(index)
     per_day, hour_records = 1440 // minutes, 60 // minutes
     rg, tair, vpd = (np.asarray(drivers[c], dtype=float) for c in ("rg", "tair", "vpd"))
+    rg_tol = rg_tolerance
+    if rg_window == "centred" and is_night is not None:
+        night = np.asarray(is_night, dtype=bool)
+
+        def rg_tol(t):
+            if night[t]:
+                return rg_tolerance
+            reach_down = rg[t] - night_rg_threshold   # distance to the day class's floor
+            return min(rg_tolerance, max(reach_down, night_rg_threshold))
     out = oracle_fill(target, per_day, hour_records,
-                      [(rg, rg_tolerance), (tair, tair_tolerance), (vpd, vpd_tolerance)],
-                      (rg, rg_tolerance), max_window_days, min_donors,
+                      [(rg, rg_tol), (tair, tair_tolerance), (vpd, vpd_tolerance)],
+                      (rg, rg_tol), max_window_days, min_donors,
                       None if is_night is None else np.asarray(is_night, dtype=bool))
     names = ("value", "method", "window_days", "count", "std", "quality")
     return pd.DataFrame(dict(zip(names, out, strict=True)), index=index)

@@ -30,6 +30,7 @@ from fluxpart.errors import (
 )
 from fluxpart.gapfill import (
     QUALITY_NAMES,
+    centred_rg_tolerance,
     driver_conditions,
     fill_drivers,
     fill_frame,
@@ -141,16 +142,16 @@ def test_filling_some_gaps_gives_their_fills_of_all_gaps(minutes, separate):
        driver_gap_fraction=st.floats(0.0, 0.5), long_gap_days=st.sampled_from([0.0, 5.0, 30.0]),
        max_window_days=st.sampled_from([0.0, 7.0, 30.0, 140.0, np.inf]),
        rg_tolerance=st.sampled_from([50.0, 20.0]), separate=st.booleans(),
-       min_donors=st.sampled_from([1, 3, 6]))
+       min_donors=st.sampled_from([1, 3, 6]), rg_window=st.sampled_from(["centred", "fixed"]))
 def test_vectorised_equals_oracle(seed, minutes, n, gap_fraction, driver_gap_fraction,
                                   long_gap_days, max_window_days, rg_tolerance, separate,
-                                  min_donors):
+                                  min_donors, rg_window):
     """Random series with random gaps: fill_marginal and the per-gap oracle agree."""
     rng = np.random.default_rng(seed)
     index, measured, drivers, _, _ = _synthetic(rng, n, minutes, gap_fraction,
                                                 driver_gap_fraction, long_gap_days)
     settings_ = dict(rg_tolerance=rg_tolerance, max_window_days=max_window_days,
-                     min_donors=min_donors)
+                     min_donors=min_donors, rg_window=rg_window)
     is_night = _night(drivers) if separate else None
     got = fill_marginal_module(
         measured, drivers, index, is_night=is_night, **settings_,
@@ -197,6 +198,8 @@ def test_defaults_are_the_papers_and_the_configs():
     assert config.gapfill_max_window_days == windows["max_window_days"]
     assert defaults["min_donors"].default == config.gapfill_min_donors
     assert defaults["donors"].default == config.gapfill_donors == "separate_day_night"
+    assert defaults["rg_window"].default == config.gapfill_rg_window == "centred"
+    assert defaults["night_rg_threshold"].default == config.night_rg_threshold
     hours = inspect.signature(fill_drivers).parameters["interpolation_hours"].default
     assert hours == config.gapfill_interpolation_hours == 3.0
 
@@ -688,6 +691,52 @@ def test_night_gaps_take_night_donors_only():
     assert out["value"].iloc[20] == pytest.approx(-1.0)
 
 
+def test_centred_rg_window_removes_the_low_light_bias():
+    """Dawn and dusk gaps under a light response that is straight at low light.
+
+    Known truth: NEE = 2 - 0.05 Rg [µmol m-2 s-1], a straight line in Rg (at low light
+    photosynthesis rises linearly with light: common practice), with day Rg spread
+    evenly over 10-400 W m-2. A day gap at Rg 15 W m-2 under the fixed ±50 W m-2
+    window averages records at 10-65 W m-2 (mean about 37): its fill is too negative
+    by about 0.05 x 22 = 1.1 µmol m-2 s-1. The centred window averages records
+    symmetric about the gap's own Rg, so the straight line is recovered.
+    """
+    rng = np.random.default_rng(7)
+    n = 48 * 60
+    index = _index(n)
+    hour = np.arange(n) % 48 / 2.0
+    day = (hour >= 6) & (hour < 18)
+    rg = np.where(day, rng.uniform(10.0, 400.0, n), 0.0)
+    drivers = _drivers(n, rg=rg, tair=15.0, vpd=8.0)
+    truth = 2.0 - 0.05 * rg
+    gaps = day & (rg < 60.0) & (rng.random(n) < 0.5)
+    measured = np.where(gaps, np.nan, truth)
+    is_night = ~day
+    errors, steps = {}, {}
+    for window in ("fixed", "centred"):
+        filled = fill_marginal_module(measured, drivers, index, is_night=is_night,
+                                      rg_window=window)
+        errors[window] = (filled["value"].to_numpy() - truth)[gaps]
+        steps[window] = filled["method"].to_numpy()[gaps]
+    # gaps at 20-35 W m-2: the centred window reaches 10 W m-2 at most, symmetric
+    low = (rg[gaps] >= 20.0) & (rg[gaps] < 35.0)
+    assert errors["fixed"][low].mean() < -0.5            # the one-sided window's bias
+    similar = low & (steps["centred"] == 1)
+    assert abs(errors["centred"][similar].mean()) < 0.1  # gone: a straight line recovered
+    # a narrower window sends few gaps on to the later steps (here: the diurnal course,
+    # which these records, with light drawn at random, cannot serve)
+    assert (steps["centred"] != 1).mean() < 0.05
+
+
+def test_centred_rg_tolerance_leaves_night_and_bright_records_alone():
+    """Night records and day records above threshold + tolerance keep ±50 W m-2."""
+    rg = np.array([0.0, 5.0, 12.0, 30.0, 60.0, 300.0, np.nan])
+    night = np.array([True, True, False, False, False, False, False])
+    got = centred_rg_tolerance(rg, night, 50.0, 10.0)
+    # 12 W m-2: never narrower than the night threshold; 30: reaches down to 10 W m-2
+    np.testing.assert_array_equal(got, [50.0, 50.0, 10.0, 20.0, 50.0, 50.0, 50.0])
+
+
 def test_min_donors_pushes_gaps_to_wider_windows():
     """With fewer similar records than min_donors, the gap falls to the next pass."""
     n = 48 * 10
@@ -714,6 +763,8 @@ def test_donor_rule_settings_are_checked():
         fill_marginal_module(np.ones(n), _drivers(n), _index(n), is_night=np.zeros(9, bool))
     with pytest.raises(ConfigError, match="gapfill_min_donors"):
         fill_marginal(np.ones(n), _drivers(n), _index(n), min_donors=0)
+    with pytest.raises(ConfigError, match="gapfill_rg_window"):
+        fill_marginal(np.ones(n), _drivers(n), _index(n), rg_window="wide")
     with pytest.raises(ConfigError, match="gapfill_interpolation_hours"):
         fill_drivers(_drivers(n).set_index(_index(n)), interpolation_hours=-1.0)
 
