@@ -389,7 +389,8 @@ def random_error_model(pairs: pd.DataFrame, *, bins=_BINS,
     scale b it gives 3b/(2√2) ≈ 1.06 b (E|δ| = 3b/2 for the difference of two
     Laplace variables), so the linear model is fitted to σ, which is unbiased.
     The line σ = a + b|NEE| is fitted by least squares to the bin means, one line
-    for uptake and one for release, after Richardson et al. (2006) (m). A class
+    for uptake and one for release, after Richardson et al. (2006), whose abstract
+    states that the random error grows linearly with the flux's magnitude. A class
     with a single bin gets a constant; a class without enough pairs borrows the
     other class's line (``source`` says so).
 
