@@ -109,6 +109,11 @@ _INPUT_REQUIRED = ("path", "time_column", "time_format", "time_marks", "columns"
 _FLOAT_SPELLINGS_OF_NAN = ("nan", "+nan", "-nan")
 _WHITESPACE = "whitespace"
 _GLOB_CHARACTERS = set("*?[")
+#: A number written with digit grouping (thousands separators) for each decimal mark:
+#: "1.034,5" or "1.034" where the decimal mark is a comma, "1,034.5" where it is a point.
+#: A leading 0 is never grouped ("0.125" is a decimal point in a mixed file).
+_DIGIT_GROUPING = {",": re.compile(r"[+-]?[1-9]\d{0,2}(?:\.\d{3})+(?:,\d*)?"),
+                   ".": re.compile(r"[+-]?[1-9]\d{0,2}(?:,\d{3})+\.\d*")}
 
 
 @dataclass(frozen=True)
@@ -1557,6 +1562,7 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
     string_codes = {str(c).strip().casefold() for c in missing if isinstance(c, str)}
     is_code = folded.isin(string_codes).to_numpy() | (cleaned == "").to_numpy() \
         | folded.isin(_FLOAT_SPELLINGS_OF_NAN).to_numpy()
+    _refuse_digit_grouping(cleaned, column, name, decimal, source, lines)
     numeric_text = cleaned.str.replace(",", ".", regex=False) if decimal == "," else cleaned
     with np.errstate(over="ignore", invalid="ignore"):
         numbers = pd.to_numeric(numeric_text.where(~is_code, None), errors="coerce").to_numpy(
@@ -1580,6 +1586,39 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
                              f"{int(lines[first])} of {source!r} has {cell!r}, which is not a "
                              f"number; {int(bad.sum())} such cell(s){hint}")
     return _apply_numeric_codes(numbers, is_code, missing, decimal)
+
+
+def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: str,
+                           source: str, lines: np.ndarray) -> None:
+    """Raise where numbers are written with thousands separators (a spreadsheet's format).
+
+    With ``decimal = ","`` a "1.034" read with the point dropped by the comma rule would be
+    1.034, not 1034 (an Rg or PPFD above 1000 turned into a value near 1, silently); a
+    "1.034,5" or "1,034.5" is not a number at all. A "1.034" counts as grouped only in a
+    column that uses decimal commas elsewhere (a column written with decimal points is
+    read as such).
+    """
+    grouping = "." if decimal == "," else ","
+    candidates = cleaned.str.contains(grouping, regex=False).to_numpy(dtype=bool)
+    if not candidates.any():
+        return
+    pattern = _DIGIT_GROUPING[decimal]
+    cells = cleaned[candidates]
+    grouped = cells.str.fullmatch(pattern).to_numpy(dtype=bool)
+    if decimal == ",":
+        both = cells.str.contains(",", regex=False).to_numpy(dtype=bool)
+        if not cleaned.str.contains(",", regex=False).any():
+            grouped = grouped & both
+    if not grouped.any():
+        return
+    first = int(np.flatnonzero(candidates)[np.flatnonzero(grouped)[0]])
+    cell = cleaned.iloc[first]
+    raise InputFileError(
+        f"column {column!r} ({name.split(':')[0]}): line {int(lines[first])} of {source!r} has "
+        f"{cell!r}, a number with {grouping!r} as thousands separator beside the decimal "
+        f"mark {decimal!r} ([input] decimal); {int(grouped.sum())} such cell(s). Write the "
+        "numbers without digit grouping in a copy of the file (a spreadsheet's number format "
+        "without the 1000 separator)")
 
 
 def _numeric_codes(missing: tuple, decimal: str) -> list:
