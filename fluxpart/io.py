@@ -763,6 +763,13 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         turbulent, storage = converted["nee"], converted.pop("storage")
         lacking = np.isfinite(turbulent) & ~np.isfinite(storage)
         storage_missing = int(lacking.sum())
+        if storage_missing and not np.isfinite(storage).any():
+            # every NEE would be missing, and the error would blame the flux column
+            raise MissingColumnError(
+                f"[input.columns] storage = {setting_text(mapping['storage'])}: the column has no "
+                "values at all (every cell empty or a missing code), so no record has NEE "
+                f"(the turbulent flux in {mapping['nee']!r} + storage); check the column and the "
+                "missing codes, or remove the storage mapping to use the turbulent flux alone")
         converted["nee"] = turbulent + storage
         source_of["nee"] = f"{mapping['nee']} + {mapping['storage']} (storage)"
         if storage_missing:

@@ -1110,6 +1110,17 @@ def test_storage_added_to_turbulent_flux(tmp_path):
     assert report.columns["nee"] == "co2_turb + sc (storage)"
 
 
+def test_storage_column_without_values_is_named(tmp_path):
+    """A storage column holding only missing codes leaves no record with NEE; the error names
+    the storage column (it blamed the NEE column, which holds values)."""
+    records = _records()
+    records["co2_turb"] = records.pop("co2_flux")
+    records["sc"] = -9999
+    with pytest.raises(MissingColumnError, match=r'storage = "sc": the column has no values'):
+        _read(_write(tmp_path / "t.csv", records),
+              columns=MAPPING | {"nee": "co2_turb", "storage": "sc"})
+
+
 def test_ppfd_converted_to_rg(tmp_path):
     """PPFD mapped without rg: rg = ppfd / 2.10 µmol J-1 (0.46 x 4.57, McCree 1972 (m))."""
     records = _records()
