@@ -805,6 +805,10 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         derived.append("vpd")
         source_of["vpd"] = "derived from rh and tair"
 
+    for name in REQUIRED:
+        if name in converted and not np.isfinite(converted[name]).any():
+            raise MissingColumnError(_empty_required_message(name, mapping, derived))
+
     order = [name for name in VARIABLES if name in converted]
     frame = pd.DataFrame({name: converted[name].astype(np.float64) for name in order},
                          index=starts)
@@ -1498,6 +1502,26 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
             raise InputFileError(f"column {column!r} (for {name}) appears more than once in the "
                                  f"header of {str(path)!r}; rename the copies")
     return {name: mapping[name] for name in READER_VARIABLES if name in mapping}, flag_columns
+
+
+def _empty_required_message(name: str, mapping: dict, derived: list) -> str:
+    """The error for a required variable without any value, naming the file columns it came from.
+
+    The canonical name alone misleads where the variable is derived (Rg from a PPFD
+    column, VPD from RH and air temperature): no column of that name is in the file.
+    """
+    if name == "vpd" and "vpd" in derived:
+        source = (f"derived from rh ({mapping['rh']!r}) and tair ({mapping['tair']!r}), but no "
+                  "record has both (each cell empty or a missing code)")
+        fix = "[input.columns] rh and tair"
+    else:
+        key = "ppfd" if name == "rg" and "rg" in derived else name
+        column = (f"the ppfd column {mapping[key]!r} it is converted from" if key == "ppfd"
+                  else f"column {mapping[key]!r}")
+        source = f"{column} has no value at all (every cell empty or a missing code)"
+        fix = f"[input.columns] {key}"
+    return (f"{name} ({VARIABLES[name].description}): {source}; every stage needs measured "
+            f"records of it: check {fix} and [input] missing")
 
 
 def _describe_mapping(mapping: dict, flag_columns: tuple) -> str:
