@@ -61,6 +61,7 @@ from .timestamps import (
     clock_alignment_warning,
     infer_interval,
     inserted_runs,
+    interval_change_warning,
     join_time_columns,
     parse_stamps,
 )
@@ -727,10 +728,14 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     combined = _combine(parts)
 
     stamps = combined["stamps"]
-    interval_minutes = infer_interval(
-        stamps, interval_minutes,
-        lambda position: f"line {combined['lines'][position]} of "
-                         f"{combined['sources'][position]!r}")
+    def describe(position):
+        return f"line {combined['lines'][position]} of {combined['sources'][position]!r}"
+
+    interval_minutes = infer_interval(stamps, interval_minutes, describe)
+    interval_change = interval_change_warning(pd.DatetimeIndex(stamps), interval_minutes,
+                                              describe)
+    if interval_change:
+        warnings.append(interval_change)
     shift_minutes = {"start": 0.0, "middle": interval_minutes / 2,
                      "end": float(interval_minutes)}[time_marks]
     starts = pd.DatetimeIndex(stamps) - pd.Timedelta(minutes=shift_minutes)
