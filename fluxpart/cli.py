@@ -103,9 +103,9 @@ def _command_demo(args) -> int:
     if args.seed < 0:
         raise ConfigError(f"--seed {args.seed}: expected a whole number >= 0 (the seed of the "
                           "demo data)")
-    _check_output_folder(Path(args.out))
-    frame, truth = demo.site_year(seed=args.seed)
     site = demo.site()
+    _check_output_folder(Path(args.out), site.name)
+    frame, truth = demo.site_year(seed=args.seed)
     bar, advance = _progress_bar(Config(), args.quiet)
     with bar:
         result = process(frame, site, provenance={"demo": {"seed": args.seed, "variant": "c3"}},
@@ -175,9 +175,15 @@ def _command_export(args) -> int:
     return command_export(args)
 
 
-def _check_output_folder(out: Path) -> None:
-    """Fail before any computation where the result folder `out` cannot be written."""
+def _check_output_folder(out: Path, site_name=None) -> None:
+    """Fail before any computation where the result folder `out` cannot be written.
+
+    `site_name` (text, or a callable giving it, called only where `out` holds a
+    manifest) must be the site of an earlier result in `out`.
+    """
     import tempfile
+
+    from .resultdir import other_site_reason
 
     out = out.absolute()
     if out.exists() and not out.is_dir():
@@ -192,6 +198,10 @@ def _check_output_folder(out: Path) -> None:
         raise FluxpartError(f"--out {str(out)!r} is inside the result folder "
                             f"{str(enclosing)!r}, which must hold only the files its manifest "
                             "lists; choose an --out outside it")
+    if site_name is not None and (out / "manifest.json").is_file():
+        other = other_site_reason(out, site_name() if callable(site_name) else site_name)
+        if other:
+            raise FluxpartError(f"--out {str(out)!r} {other}")
     ancestor = out.parent
     while not ancestor.exists():
         ancestor = ancestor.parent
@@ -208,12 +218,13 @@ def _check_output_folder(out: Path) -> None:
 
 def _command_run(args) -> int:
     from .config import Config
+    from .io import read_site_config
     from .pipeline import process_site_config
 
     config = Config.from_toml(args.config)
     out = Path(args.out) if args.out else Path(args.config).with_suffix("").parent / (
         Path(args.config).stem + "-output")
-    _check_output_folder(out)
+    _check_output_folder(out, lambda: read_site_config(args.config).site.name)
     bar, advance = _progress_bar(config, args.quiet)
     with bar:
         result = process_site_config(args.config, config, progress=advance)

@@ -61,6 +61,7 @@ from .timestamps import (
     clock_alignment_warning,
     infer_interval,
     inserted_runs,
+    interval_change_warning,
     join_time_columns,
     parse_stamps,
 )
@@ -109,6 +110,11 @@ _INPUT_REQUIRED = ("path", "time_column", "time_format", "time_marks", "columns"
 _FLOAT_SPELLINGS_OF_NAN = ("nan", "+nan", "-nan")
 _WHITESPACE = "whitespace"
 _GLOB_CHARACTERS = set("*?[")
+#: A number written with digit grouping (thousands separators) for each decimal mark:
+#: "1.034,5" or "1.034" where the decimal mark is a comma, "1,034.5" where it is a point.
+#: A leading 0 is never grouped ("0.125" is a decimal point in a mixed file).
+_DIGIT_GROUPING = {",": re.compile(r"[+-]?[1-9]\d{0,2}(?:\.\d{3})+(?:,\d*)?"),
+                   ".": re.compile(r"[+-]?[1-9]\d{0,2}(?:,\d{3})+\.\d*")}
 
 
 @dataclass(frozen=True)
@@ -722,10 +728,14 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     combined = _combine(parts)
 
     stamps = combined["stamps"]
-    interval_minutes = infer_interval(
-        stamps, interval_minutes,
-        lambda position: f"line {combined['lines'][position]} of "
-                         f"{combined['sources'][position]!r}")
+    def describe(position):
+        return f"line {combined['lines'][position]} of {combined['sources'][position]!r}"
+
+    interval_minutes = infer_interval(stamps, interval_minutes, describe)
+    interval_change = interval_change_warning(pd.DatetimeIndex(stamps), interval_minutes,
+                                              describe)
+    if interval_change:
+        warnings.append(interval_change)
     shift_minutes = {"start": 0.0, "middle": interval_minutes / 2,
                      "end": float(interval_minutes)}[time_marks]
     starts = pd.DatetimeIndex(stamps) - pd.Timedelta(minutes=shift_minutes)
@@ -758,6 +768,13 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         turbulent, storage = converted["nee"], converted.pop("storage")
         lacking = np.isfinite(turbulent) & ~np.isfinite(storage)
         storage_missing = int(lacking.sum())
+        if storage_missing and not np.isfinite(storage).any():
+            # every NEE would be missing, and the error would blame the flux column
+            raise MissingColumnError(
+                f"[input.columns] storage = {setting_text(mapping['storage'])}: the column has no "
+                "values at all (every cell empty or a missing code), so no record has NEE "
+                f"(the turbulent flux in {mapping['nee']!r} + storage); check the column and the "
+                "missing codes, or remove the storage mapping to use the turbulent flux alone")
         converted["nee"] = turbulent + storage
         source_of["nee"] = f"{mapping['nee']} + {mapping['storage']} (storage)"
         if storage_missing:
@@ -792,6 +809,10 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         converted["vpd"] = vpd_from_rh(converted["rh"], converted["tair"])
         derived.append("vpd")
         source_of["vpd"] = "derived from rh and tair"
+
+    for name in REQUIRED:
+        if name in converted and not np.isfinite(converted[name]).any():
+            raise MissingColumnError(_empty_required_message(name, mapping, derived))
 
     order = [name for name in VARIABLES if name in converted]
     frame = pd.DataFrame({name: converted[name].astype(np.float64) for name in order},
@@ -1488,6 +1509,26 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
     return {name: mapping[name] for name in READER_VARIABLES if name in mapping}, flag_columns
 
 
+def _empty_required_message(name: str, mapping: dict, derived: list) -> str:
+    """The error for a required variable without any value, naming the file columns it came from.
+
+    The canonical name alone misleads where the variable is derived (Rg from a PPFD
+    column, VPD from RH and air temperature): no column of that name is in the file.
+    """
+    if name == "vpd" and "vpd" in derived:
+        source = (f"derived from rh ({mapping['rh']!r}) and tair ({mapping['tair']!r}), but no "
+                  "record has both (each cell empty or a missing code)")
+        fix = "[input.columns] rh and tair"
+    else:
+        key = "ppfd" if name == "rg" and "rg" in derived else name
+        column = (f"the ppfd column {mapping[key]!r} it is converted from" if key == "ppfd"
+                  else f"column {mapping[key]!r}")
+        source = f"{column} has no value at all (every cell empty or a missing code)"
+        fix = f"[input.columns] {key}"
+    return (f"{name} ({VARIABLES[name].description}): {source}; every stage needs measured "
+            f"records of it: check {fix} and [input] missing")
+
+
 def _describe_mapping(mapping: dict, flag_columns: tuple) -> str:
     pairs = list(mapping.items()) + [("nee_flag", column) for column in flag_columns]
     return ", ".join(f"{name} <- {column}" for name, column in pairs)
@@ -1557,6 +1598,7 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
     string_codes = {str(c).strip().casefold() for c in missing if isinstance(c, str)}
     is_code = folded.isin(string_codes).to_numpy() | (cleaned == "").to_numpy() \
         | folded.isin(_FLOAT_SPELLINGS_OF_NAN).to_numpy()
+    _refuse_digit_grouping(cleaned, column, name, decimal, source, lines)
     numeric_text = cleaned.str.replace(",", ".", regex=False) if decimal == "," else cleaned
     with np.errstate(over="ignore", invalid="ignore"):
         numbers = pd.to_numeric(numeric_text.where(~is_code, None), errors="coerce").to_numpy(
@@ -1580,6 +1622,39 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
                              f"{int(lines[first])} of {source!r} has {cell!r}, which is not a "
                              f"number; {int(bad.sum())} such cell(s){hint}")
     return _apply_numeric_codes(numbers, is_code, missing, decimal)
+
+
+def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: str,
+                           source: str, lines: np.ndarray) -> None:
+    """Raise where numbers are written with thousands separators (a spreadsheet's format).
+
+    With ``decimal = ","`` a "1.034" read with the point dropped by the comma rule would be
+    1.034, not 1034 (an Rg or PPFD above 1000 turned into a value near 1, silently); a
+    "1.034,5" or "1,034.5" is not a number at all. A "1.034" counts as grouped only in a
+    column that uses decimal commas elsewhere (a column written with decimal points is
+    read as such).
+    """
+    grouping = "." if decimal == "," else ","
+    candidates = cleaned.str.contains(grouping, regex=False).to_numpy(dtype=bool)
+    if not candidates.any():
+        return
+    pattern = _DIGIT_GROUPING[decimal]
+    cells = cleaned[candidates]
+    grouped = cells.str.fullmatch(pattern).to_numpy(dtype=bool)
+    if decimal == ",":
+        both = cells.str.contains(",", regex=False).to_numpy(dtype=bool)
+        if not cleaned.str.contains(",", regex=False).any():
+            grouped = grouped & both
+    if not grouped.any():
+        return
+    first = int(np.flatnonzero(candidates)[np.flatnonzero(grouped)[0]])
+    cell = cleaned.iloc[first]
+    raise InputFileError(
+        f"column {column!r} ({name.split(':')[0]}): line {int(lines[first])} of {source!r} has "
+        f"{cell!r}, a number with {grouping!r} as thousands separator beside the decimal "
+        f"mark {decimal!r} ([input] decimal); {int(grouped.sum())} such cell(s). Write the "
+        "numbers without digit grouping in a copy of the file (a spreadsheet's number format "
+        "without the 1000 separator)")
 
 
 def _numeric_codes(missing: tuple, decimal: str) -> list:

@@ -34,6 +34,7 @@ import ctypes
 import ctypes.util
 import errno
 import getpass
+import json
 import os
 import re
 import secrets
@@ -317,7 +318,36 @@ def _swap_in(staging: Path, directory: Path) -> None:
     shutil.rmtree(retired, ignore_errors=True)
 
 
-def _is_replaceable(directory: Path) -> str | None:
+def recorded_site_name(directory) -> str | None:
+    """The site name in the manifest of the result folder `directory`, or None.
+
+    None where there is no folder, no manifest, or no readable site name in it (a
+    damaged manifest does not protect its folder).
+    """
+    try:
+        manifest = json.loads((Path(directory) / MANIFEST_FILE).read_text(encoding="utf-8"))
+    except (OSError, UnicodeDecodeError, ValueError):
+        return None
+    site = manifest.get("site") if isinstance(manifest, dict) else None
+    name = site.get("name") if isinstance(site, dict) else None
+    return name if isinstance(name, str) else None
+
+
+def other_site_reason(directory, site_name) -> str | None:
+    """Why the result folder `directory` must not take a result of `site_name`, or None.
+
+    A result folder holds one site: writing another site's result into it (the same
+    ``--out`` given for two sites) would replace the first site's result without a word.
+    """
+    recorded = recorded_site_name(directory)
+    if recorded is None or site_name is None or recorded == site_name:
+        return None
+    return (f"holds the result of site {recorded!r}, not of {site_name!r} ([site] name), and "
+            "writing would replace it; choose another --out for this site, or delete that "
+            "folder first if it is the same site renamed")
+
+
+def _is_replaceable(directory: Path, site_name=None) -> str | None:
     """Why `directory` must not be replaced, or None when it may be."""
     if not directory.exists():
         return None
@@ -329,7 +359,7 @@ def _is_replaceable(directory: Path) -> str | None:
     if not (directory / MANIFEST_FILE).is_file():
         return ("is a folder that holds other files and no manifest.json; it is not a fluxpart "
                 "result folder, and writing would replace it whole")
-    return None
+    return other_site_reason(directory, site_name)
 
 
 # --------------------------------------------------------------------------- writing
@@ -374,9 +404,9 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
     Parameters
     ----------
     directory : path-like
-        The result folder. If it exists it must be a result folder (or empty):
-        it is replaced whole, so files that are not part of the new result do not
-        survive.
+        The result folder. If it exists it must be a result folder of the same
+        site (the same ``name``) or empty: it is replaced whole, so files that are
+        not part of the new result do not survive.
     tables : dict of str to pandas.DataFrame
         Table name -> table, each written as ``<name>.parquet`` with the units
         of :func:`fluxpart.schema.units_for_table`.
@@ -402,14 +432,15 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
     Raises
     ------
     OutputError
-        If `directory` is a file, a folder that is not a result folder, not
-        writable, or locked by another writer for longer than `lock_timeout`.
+        If `directory` is a file, a folder that is not a result folder, the
+        result folder of another site, not writable, or locked by another writer for longer than `lock_timeout`.
         Nothing is changed in that case.
     """
     from .schema import units_for_table
 
     directory = _absolute(directory)
-    reason = _is_replaceable(directory)
+    site_name = site.get("name") if isinstance(site, dict) else None
+    reason = _is_replaceable(directory, site_name)
     if reason:
         raise OutputError(f"output folder {str(directory)!r} {reason}; choose another --out")
     try:
@@ -419,7 +450,7 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
                           f"{error.strerror or error}") from None
     with folder_lock(directory, lock_timeout, notify, remove=True):
         clean_leftovers(directory)
-        reason = _is_replaceable(directory)
+        reason = _is_replaceable(directory, site_name)
         if reason:
             raise OutputError(f"output folder {str(directory)!r} {reason}; choose another --out")
         try:
@@ -443,8 +474,6 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
                 entries, site=site, config=config, seed=seed, provenance=provenance,
                 warnings=warnings, versions=library_versions(), code=code_fingerprint(),
                 platform_facts=platform_record(), directory=directory)
-            import json
-
             log = run_log_record(directory, provenance)
             atomic_write_bytes(staging / RUN_LOG,
                                (json.dumps(log, indent=2, ensure_ascii=False) + "\n").encode())

@@ -36,6 +36,7 @@ __all__ = [
     "check_order",
     "check_time_zone",
     "clock_alignment_warning",
+    "interval_change_warning",
     "infer_interval",
     "inserted_runs",
     "join_time_columns",
@@ -629,6 +630,47 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
             f"{declared}-minute interval; {irregular.size} such step(s), spacings found: "
             f"{', '.join(found)} minutes")
     return int(declared)
+
+
+def interval_change_warning(stamps: pd.DatetimeIndex, interval_minutes: int,
+                            describe=None) -> str | None:
+    """A warning where the stamps step by twice the interval for a day or more, else None.
+
+    A logger whose interval changed (30 to 60 minutes) within the record writes a
+    stretch of stamps two intervals apart: each of its records would be read as one
+    record of `interval_minutes` (the later half of its true interval) and every other
+    interval inserted as missing. A day of such steps in a row does not come from
+    records lost one at a time (our choice of length: one day of the longer records).
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        Sorted unique stamps as in the file.
+    interval_minutes : int
+        The record interval [minutes].
+    describe : callable, optional
+        ``describe(position)`` -> text naming the file and line of stamp `position`.
+
+    Returns
+    -------
+    str or None
+        The warning, naming the first such stretch.
+    """
+    describe = describe or (lambda position: f"record {position + 1}")
+    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(minutes=1), dtype=float)
+    double = np.concatenate([[False], steps == 2 * interval_minutes, [False]])
+    edges = np.flatnonzero(np.diff(double.astype(np.int8)))
+    first, last = edges[0::2], edges[1::2]          # steps first .. last - 1 are double
+    long = (last - first) >= 24 * 60 // (2 * interval_minutes)
+    if not long.any():
+        return None
+    start, end = int(first[long][0]), int(last[long][0])
+    return (f"the stamps are {2 * interval_minutes} minutes apart for {end - start} steps in a row "
+            f"from {describe(start)} ({stamps[start]} .. {stamps[end]}; {int(long.sum())} such "
+            f"stretch(es) of a day or more) in a record of {interval_minutes}-minute intervals: "
+            f"if the logger changed its interval, each of those records is read as "
+            f"{interval_minutes} minutes and every other interval inserted as missing; average "
+            f"the whole record to {2 * interval_minutes} minutes in a copy of the file")
 
 
 def clock_alignment_warning(starts: pd.DatetimeIndex, interval_minutes: int,

@@ -443,14 +443,22 @@ def _compare_manifests(stored: dict, recomputed: dict) -> list:
 
 
 def _environment(manifest: dict) -> tuple[list[str], bool]:
-    """Version, code and platform differences; whether the code fingerprint changed."""
+    """Version, code and platform differences; whether the code fingerprint changed.
+
+    An entry that is not a JSON object (a hand-edited manifest, whose broken seal is
+    already reported) counts as not recorded.
+    """
+    versions, code, platform = (manifest.get(key) if isinstance(manifest.get(key), dict)
+                                else None for key in _ENVIRONMENT_KEYS)
     out = []
     current = library_versions()
-    for name, recorded in sorted((manifest.get("versions") or {}).items()):
+    if versions is None:
+        out.append("library versions are not recorded in the manifest")
+    for name, recorded in sorted((versions or {}).items()):
         if current.get(name) != recorded:
             out.append(f"{name} {current.get(name, 'not installed')} is installed, the result "
                        f"was written with {recorded}; numbers may differ in their last digits")
-    code = manifest.get("code") or {}
+    code = code or {}
     now = code_fingerprint()
     code_changed = code.get("sha256") != now["sha256"] or code.get("version") != now["version"]
     if code_changed:
@@ -458,7 +466,7 @@ def _environment(manifest: dict) -> tuple[list[str], bool]:
                    f"{code.get('version')} with code {str(code.get('sha256'))[:16]}..., this is "
                    f"fluxpart {now['version']} with code {now['sha256'][:16]}...; changed code "
                    "is the likely cause of any difference")
-    differing = platform_differences(manifest.get("platform"), platform_record())
+    differing = platform_differences(platform, platform_record())
     if differing:
         out.append("platform differs in " + "; ".join(differing))
     return out, code_changed

@@ -139,7 +139,7 @@ def test_collector_thresholds_raised_during_a_command_and_restored(example, monk
 
     seen = []
 
-    def stop(out):
+    def stop(out, *site_name):
         seen.append(gc.get_threshold())
         raise cli.FluxpartError("stopped by the test")
 

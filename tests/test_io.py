@@ -1110,6 +1110,34 @@ def test_storage_added_to_turbulent_flux(tmp_path):
     assert report.columns["nee"] == "co2_turb + sc (storage)"
 
 
+def test_storage_column_without_values_is_named(tmp_path):
+    """A storage column holding only missing codes leaves no record with NEE; the error names
+    the storage column (it blamed the NEE column, which holds values)."""
+    records = _records()
+    records["co2_turb"] = records.pop("co2_flux")
+    records["sc"] = -9999
+    with pytest.raises(MissingColumnError, match=r'storage = "sc": the column has no values'):
+        _read(_write(tmp_path / "t.csv", records),
+              columns=MAPPING | {"nee": "co2_turb", "storage": "sc"})
+
+
+@pytest.mark.parametrize(("empty", "mapping", "named"), [
+    ("par", {"rg": None, "ppfd": "par"}, r"rg .*the ppfd column 'par' it is converted from"),
+    ("rh", {"vpd": None, "rh": "rh"}, r"vpd .*derived from rh \('rh'\) and tair \('t_air'\)"),
+    ("sw_in", {}, r"rg .*column 'sw_in' has no value")])
+def test_required_variable_without_values_names_its_file_columns(tmp_path, empty, mapping,
+                                                                  named):
+    """Rg from an empty PPFD column, VPD from an empty RH column: the error names the file
+    column (it named 'rg' or 'vpd', which the file does not have)."""
+    records = _records()
+    records["par"] = records["sw_in"] * 2.1
+    records["rh"] = 50.0
+    records[empty] = -9999
+    columns = {k: v for k, v in (MAPPING | mapping).items() if v is not None}
+    with pytest.raises(MissingColumnError, match=named):
+        _read(_write(tmp_path / "t.csv", records), columns=columns)
+
+
 def test_ppfd_converted_to_rg(tmp_path):
     """PPFD mapped without rg: rg = ppfd / 2.10 µmol J-1 (0.46 x 4.57, McCree 1972 (m))."""
     records = _records()

@@ -283,6 +283,24 @@ def test_out_that_is_a_file_or_a_foreign_folder_is_refused(short_result, tmp_pat
     assert _leftovers(target) == [] and _leftovers(folder) == []
 
 
+def test_result_of_another_site_is_not_replaced(short_result, tmp_path):
+    """One --out for two sites: the second site's write is refused, the first result kept.
+
+    It replaced the first site's result without a word before.
+    """
+    out = tmp_path / "out"
+    short_result.write(out)
+    before = read_folder(out)[0]
+    other = dataclasses.replace(short_result, site=dataclasses.replace(
+        short_result.site, name="Another tower"))
+    with pytest.raises(OutputError, match="holds the result of site .*not of 'Another tower'"):
+        other.write(out)
+    assert read_folder(out)[0]["seal"] == before["seal"]
+    assert _leftovers(out) == []
+    short_result.write(out)                                     # the same site: replaced
+    assert read_folder(out)[0]["tables"] == before["tables"]
+
+
 @pytest.mark.skipif(os.name != "posix" or os.geteuid() == 0,
                     reason="needs POSIX permissions that apply (not root)")
 def test_unwritable_place_fails_cleanly(short_result, tmp_path):

@@ -168,3 +168,24 @@ def test_status_survives_a_reader_that_closes_early(tmp_path):
     err = child.stderr.read().decode()
     assert child.wait(timeout=300) == 1, err
     assert "Traceback" not in err and "Exception ignored" not in err
+
+
+def test_run_into_the_result_folder_of_another_site_is_refused_before_reading(tmp_path,
+                                                                              capsys):
+    """The same --out for two sites: one error line naming both sites, the folder untouched.
+
+    The second site's result replaced the first one's before.
+    """
+    from bundles import make_bundle
+
+    config = make_bundle(tmp_path, records=48)
+    result = tmp_path / "out"
+    result.mkdir()
+    (result / "manifest.json").write_text('{"site": {"name": "Another tower"}}')
+    (tmp_path / "tower.csv").unlink()          # refused before the input is read
+    status = main(["run", str(config), "--out", str(result), "--quiet"])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert status == 2
+    assert len(err) == 1 and err[0].startswith("error: --out")
+    assert "'Another tower'" in err[0] and "[site] name" in err[0]
+    assert sorted(p.name for p in result.iterdir()) == ["manifest.json"]

@@ -210,3 +210,77 @@ def test_windows_backslash_path_gets_the_forward_slash_hint(example, tmp_path, c
     config.write_text(config.read_text(encoding="utf-8").replace(
         "path = 'data\\tower.csv'", 'path = "data/tower.csv"'), encoding="utf-8")
     assert main(["check", str(config)]) == 0
+
+
+def _decimal_comma_example(example, tmp_path, name, solar):
+    """The example as a semicolon file with decimal commas; `solar` rewrites the Rg cells."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    column = lines[0].split(",").index("solar_down")
+    rows = [lines[0].replace(",", ";")]
+    for line in lines[1:]:
+        cells = line.split(",")
+        rows.append(";".join([cells[0]] + [solar(cell) if i == column else cell.replace(".", ",")
+                                           for i, cell in enumerate(cells) if i > 0]))
+    data = tmp_path / name
+    data.write_text("\n".join(rows) + "\n")
+    config = tmp_path / f"{Path(name).stem}.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"',
+        f'path = "{name}"\ndelimiter = ";"\ndecimal = ","'), encoding="utf-8")
+    return config
+
+
+@pytest.mark.parametrize(("written", "decimals"), [("{:,.1f}", True), ("{:,.0f}", False)])
+def test_thousands_separator_beside_decimal_comma_is_refused(example, tmp_path, capsys,
+                                                              written, decimals):
+    """Rg written by a spreadsheet with digit grouping in a decimal-comma file ("1.034,1" or
+    "1.034" for 1034 W m-2). "1.034" was read as 1.034 W m-2 without a word (the '.' taken
+    as a decimal point), "1.034,1" refused with the hint to list it as a missing code. The
+    convention: a decimal-comma locale groups thousands with '.', as German spreadsheets
+    write them (common practice)."""
+    def solar(cell):
+        value = float(cell) * 1.2
+        if cell == "-9999" or abs(value) < 1000:
+            return cell.replace(".", ",")
+        text = written.format(value)                 # "1,034.1" in the C locale
+        return text.replace(",", "_").replace(".", ",").replace("_", ".")
+
+    config = _decimal_comma_example(example, tmp_path, f"grouped{decimals}.csv", solar)
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "'solar_down' (rg)" in line and "thousands separator" in line
+    assert "add it to [input] missing" not in line
+
+
+def test_decimal_points_in_a_decimal_comma_file_still_read(example, tmp_path):
+    """A column written with decimal points in a file declared decimal = "," (a mixed
+    export) reads as before: a '.' counts as digit grouping only where the column also
+    holds decimal commas."""
+    from fluxpart.io import read_config
+
+    config = _decimal_comma_example(example, tmp_path, "mixed.csv", lambda cell: cell)
+    frame, _ = read_config(config)
+    plain, _ = read_config(example)
+    assert frame.equals(plain)
+
+
+def test_thousands_separator_beside_decimal_point_is_named(example, tmp_path, capsys):
+    """'1,034.1' in a semicolon file with decimal points (an English-locale spreadsheet) is
+    named as digit grouping, not met with 'add it to [input] missing'."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    column = lines[0].split(",").index("solar_down")
+    rows = [lines[0].replace(",", ";")]
+    for line in lines[1:]:
+        cells = line.split(",")
+        if cells[column] != "-9999" and float(cells[column]) * 1.2 >= 1000:
+            cells[column] = f"{float(cells[column]) * 1.2:,.1f}"
+        rows.append(";".join(cells))
+    data = tmp_path / "points.csv"
+    data.write_text("\n".join(rows) + "\n")
+    config = tmp_path / "points.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', 'path = "points.csv"\ndelimiter = ";"'),
+        encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "'solar_down' (rg)" in line and "thousands separator" in line

@@ -13,7 +13,13 @@ import pandas as pd
 import pytest
 
 from fluxpart.errors import ConfigError, SpacingError, TimestampError
-from fluxpart.timestamps import budget_years, check_time_zone, infer_interval, parse_stamps
+from fluxpart.timestamps import (
+    budget_years,
+    check_time_zone,
+    infer_interval,
+    interval_change_warning,
+    parse_stamps,
+)
 
 
 def test_budget_years_calendar_default():
@@ -123,3 +129,20 @@ def test_hour_24_still_read_with_fixed_width_formats():
                                    pd.Timestamp("2021-06-02 00:00"),
                                    pd.Timestamp("2021-06-02 00:30")]
     assert parsed.hour_24 == 1
+
+
+def test_interval_change_within_the_record_is_warned():
+    """A logger switched from 30- to 60-minute records in October: the stretch of 60-minute
+    steps (a day or more) is named; every other half-hour was inserted as missing, each hourly
+    record read as a half-hour, without a word. Records lost one at a time are not named."""
+    half = pd.date_range("2021-01-01", "2021-09-30 23:30", freq="30min")
+    hour = pd.date_range("2021-10-01", "2021-12-31 23:00", freq="60min")
+    message = interval_change_warning(half.append(hour), 30)
+    assert message is not None and "60 minutes apart for 2207 steps in a row" in message
+    assert f"from record {len(half) + 1} (2021-10-01 00:00:00" in message
+    # every other record lost for half a day only, or single losses: no warning
+    short = half.delete(np.arange(1001, 1023, 2))
+    lost = half.delete(np.arange(5, len(half), 7))
+    assert interval_change_warning(short, 30) is None
+    assert interval_change_warning(lost, 30) is None
+    assert interval_change_warning(hour, 60) is None

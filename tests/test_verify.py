@@ -167,6 +167,21 @@ def test_resealed_manifest_edit_is_still_caught_by_the_rerun(copy):
     assert [d.column for d in report.differences] == ["site.name"]
 
 
+@pytest.mark.parametrize("key", ["versions", "code", "platform"])
+def test_environment_entry_edited_to_another_type_is_tampering_not_a_crash(copy, key, capsys):
+    """A manifest whose versions, code or platform entry is no JSON object: exit 1, named.
+
+    It raised AttributeError / TypeError (a traceback) before.
+    """
+    _edit_manifest(copy / "out", lambda m: m.update({key: 5}))
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert "manifest.json was edited after it was written" in out
+    named = {"versions": "library versions are not recorded",
+             "code": "code fingerprint differs", "platform": "platform (not recorded"}[key]
+    assert named in out
+
+
 def test_extra_and_missing_files_are_named(copy, capsys):
     """A stale table left in the folder and a deleted one: exit 1, both named; load refuses."""
     shutil.copy(copy / "out" / "daily.parquet", copy / "out" / "parameters_old.parquet")
