@@ -127,9 +127,11 @@ _MINUTES_PER_DAY = 1440
 _CLASSES = ("uptake", "release")
 #: Artificial gaps: rounds (one extra fill each) and share of measured records held
 #: out per round; fewest scored records of a class for its error model. Our choices:
-#: three rounds give hundreds of scored gaps in a year; holding out a tenth keeps
-#: the donors nearly as plentiful as in the real fill.
-_GAP_ROUNDS = 3
+#: six rounds give about a thousand scored gaps in a year (three, before 0.8.0, left
+#: the fill bias's standard error as large as the rest of the gap-filling part, and the
+#: part moved by up to a factor of two with the seed); holding out a tenth keeps the
+#: donors nearly as plentiful as in the real fill.
+_GAP_ROUNDS = 6
 _GAP_SHARE = 0.1
 _GAP_MIN_RECORDS = 50
 #: Fills of different gaps at most this far apart [days] share part of their error: the
@@ -1589,20 +1591,20 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         0.30 within a month and within a year on generated site-years);
       * the systematic fill bias B: the mean artificial-gap error per filled
         record times the filled records (fully correlated over the period),
-        added as B². B is **not** subtracted from the estimate (on known-truth
-        site-years it hardly correlated with the actual error). Its standard
-        error S is reported (``nee_uncertainty_gapfill_bias_se``), not added:
-        the error of an estimate left uncorrected holds the bias (Nμ)² but not
-        the spread of its estimate, and E[B²] = (Nμ)² + Var(B) already states
-        (Nμ)² on the safe side. Before 0.7.0 the part was max(B², S²), S
-        computed as if all filled records shared one error, to stand in for
-        the correlation between gaps that the per-gap terms missed; with that
-        correlation counted (c, b_long) it counted it twice: on the three
-        known-truth benchmarks the annual NEE intervals were wider than their
-        coverage needs (median |error|/σ 0.54, 0.59 and 0.46, against 0.674
-        for a calibrated normal), while monthly sums were too narrow (their 95 %
-        interval held the truth in 88 % of 840 generated months). Figures of
-        this release: DEVELOPERS.md, "Calibration".
+        added as max(B² − S², 0), S its standard error (reported as
+        ``nee_uncertainty_gapfill_bias_se``). B is **not** subtracted from the
+        estimate (on known-truth site-years it hardly correlated with the actual
+        error). The error of an estimate left uncorrected holds the squared bias
+        (Nμ)², not the spread of its estimate; E[B²] = (Nμ)² + S², so
+        B² − S² estimates (Nμ)² without bias and its positive part is the
+        usual estimator of a squared mean. Since 0.8.0; 0.7.0 added B², which
+        put S² on top of every interval at random: on the three known-truth
+        benchmarks the median |B| (4.0–4.8 g C m-2) was what a B of pure
+        noise gives for their median S (6.4–7.9), and the gap-filling part of
+        one site-year moved by up to a factor of 2.9 between seeds. Before
+        0.7.0 the part was max(B², S²), S computed as if all filled records
+        shared one error, to stand in for the correlation between gaps that
+        the per-gap terms then missed. Figures: DEVELOPERS.md, "Calibration".
     - u* threshold: :func:`ustar_sigma` of the scenario sums.
     - fitted parameters: nighttime Reco: E0 + 1 s.e. (:func:`e0_sensitivity`,
       fully correlated) and the relative standard error of each Rref window
@@ -1713,9 +1715,10 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             donors = per_period(np.where(records, 2.0 * donor_noise, 0.0))
             bias = per_period(np.where(records, pick["bias"], 0.0)) * factor
             bias_se = per_period(np.where(records, pick["bias_se"], 0.0)) * factor
-            # B² overstates the squared bias (Nμ)² by the variance of its estimate (Notes)
+            # E[B²] = (Nμ)² + S²: B² - S² estimates the squared bias (positive part; Notes)
+            squared_bias = np.maximum(np.square(bias) - np.square(bias_se), 0.0)
             return (independent + correlated + neighbours + donors) * factor**2 \
-                + np.square(bias), bias, bias_se
+                + squared_bias, bias, bias_se
 
         gap_id = _run_ids(filled)
         records_per_day = _MINUTES_PER_DAY // int(interval_minutes)
