@@ -59,15 +59,27 @@ def method_agreement(budget: pd.DataFrame, margin: float = 0.15) -> pd.DataFrame
     return out
 
 
+#: Fewest days of records a budget year needs for its two methods to be compared: the
+#: methods' windows (4-day daytime windows, 15-day E0 windows) need weeks of data, and a
+#: relative difference of sums over hours or days (a file that ends a few records into
+#: the next year) is noise. A month, our choice.
+MIN_COMPARED_DAYS = 30.0
+
+
 def disagreements(annual: pd.DataFrame, margin: float) -> list[str]:
     """Warnings for the years whose two methods differ by more than `margin`, or that one
-    method left without an annual sum of a flux the other has."""
+    method left without an annual sum of a flux the other has.
+
+    A year with ``records`` and ``records_expected`` columns holding fewer than
+    :data:`MIN_COMPARED_DAYS` days of records is not compared (its partial-year warning
+    says what it is).
+    """
     messages = []
     for year, row in annual.iterrows():
         relative = {flux: row[f"{flux}_relative_difference"] for flux in _FLUXES}
         compared = [flux for flux in _FLUXES if np.isfinite(relative[flux])]
-        if row["methods_agree"] or not compared:
-            continue    # agreeing, or no sums to compare (a year without data)
+        if row["methods_agree"] or not compared or _too_short(row):
+            continue    # agreeing, or no sums to compare (a year without data, a stub)
         missing = [flux.upper() for flux in _FLUXES if flux not in compared]
         beyond = [flux for flux in compared if abs(relative[flux]) > margin]
         if beyond:
@@ -81,3 +93,14 @@ def disagreements(annual: pd.DataFrame, margin: float) -> list[str]:
             messages.append(f"{year}: the daytime and nighttime partitionings could not be "
                             f"compared for {' and '.join(missing)}: a method gave no annual sum")
     return messages
+
+
+def _too_short(row) -> bool:
+    """Whether a budget year holds fewer than MIN_COMPARED_DAYS days of records."""
+    if "records" not in row or "records_expected" not in row:
+        return False
+    expected = float(row["records_expected"])
+    if not np.isfinite(expected) or expected <= 0:
+        return False
+    # records_expected covers the whole budget year: about 365.25 days of records
+    return float(row["records"]) < expected * MIN_COMPARED_DAYS / 365.25

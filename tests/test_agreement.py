@@ -49,3 +49,15 @@ def test_a_flux_one_method_left_unsummed_is_reported_as_not_compared():
     messages = disagreements(method_agreement(annual, 0.15), 0.15)
     assert messages == ["2021: the daytime and nighttime partitionings could not be compared "
                         "for GPP: a method gave no annual sum"]
+
+
+def test_a_stub_year_is_not_compared():
+    """Ten records of the next year (a file that ends a few hours into it) give sums whose
+    relative difference is noise; only a year with a month of records is compared."""
+    annual = method_agreement(pd.DataFrame(
+        {"gpp_daytime": [1300.0, 0.1, 150.0], "gpp_nighttime": [1000.0, -0.04, 100.0],
+         "reco_daytime": [900.0, 0.1, 80.0], "reco_nighttime": [900.0, 0.2, 80.0],
+         "records": [17520, 10, 2000], "records_expected": [17520, 17520, 17568]},
+        index=pd.Index([2021, 2022, 2024], name="year")), 0.15)
+    messages = disagreements(annual, 0.15)
+    assert [m[:4] for m in messages] == ["2021", "2024"]      # 2000 records: 41 days
