@@ -590,6 +590,55 @@ def _write_failures(outcomes, out: Path) -> pd.DataFrame:
 
 # --------------------------------------------------------------------------- the batch
 
+#: Modules a local worker needs for a site task, imported once by the fork server.
+_WORKER_PRELOAD = ("distributed", "fluxpart.batch", "fluxpart.io", "fluxpart.pipeline")
+
+
+def _start_method(platform: str | None = None, available=None) -> str:
+    """Return how the local cluster starts its worker processes.
+
+    Parameters
+    ----------
+    platform : str, optional
+        ``sys.platform``; default: this one.
+    available : collection of str, optional
+        The start methods the platform offers; default
+        ``multiprocessing.get_all_start_methods()``.
+
+    Returns
+    -------
+    str
+        ``"forkserver"`` on Linux where it exists: one server process imports
+        :data:`_WORKER_PRELOAD` once and each worker is forked from it, single-threaded,
+        so workers start with fluxpart's modules already imported instead of
+        importing (and, without a bytecode cache, compiling) them each. ``"spawn"``
+        (Dask's default) elsewhere: Windows has no fork, and on macOS system
+        libraries are not safe to fork, which is why Python spawns there.
+
+    References
+    ----------
+    Python documentation, ``multiprocessing``, "Contexts and start methods"
+    (Python 3.11).
+    """
+    import multiprocessing
+
+    platform = sys.platform if platform is None else platform
+    available = multiprocessing.get_all_start_methods() if available is None else available
+    return "forkserver" if platform.startswith("linux") and "forkserver" in available else "spawn"
+
+
+def _use_fork_server() -> None:
+    """Give the fork server fluxpart's worker modules to import before it forks.
+
+    Dask sets the fork server's preload list (its own packages) on its first
+    request for a context, so the list is set after that request; it takes
+    effect when the server starts, at the first worker of this process.
+    """
+    from distributed.utils import get_mp_context
+
+    get_mp_context().set_forkserver_preload(list(_WORKER_PRELOAD))
+
+
 def _client(scheduler, workers):
     """Return (client, cluster or None) for an address or a new local cluster."""
     try:
@@ -620,10 +669,17 @@ def _client(scheduler, workers):
     # Dask's statistical profiler samples the task thread's stack every 10 ms for a
     # dashboard these local clusters do not serve; it took 15 % of the CPU of a
     # site (3 demo site-years in one worker: 10.2 s with it, 8.7 s without).
+    # Workers fork from a server that has imported fluxpart where the platform allows it
+    # (see _start_method): 2 workers started and one demo site each, 5.7 -> 4.7 s wall and
+    # 6.0 -> 4.8 s CPU of all processes (tests/benchmarks/bench_batch.py for whole batches).
+    method = _start_method()
     saved = dict(os.environ)
     try:
         with dask.config.set({"distributed.nanny.pre-spawn-environ.MALLOC_TRIM_THRESHOLD_":
-                              None, "distributed.worker.profile.enabled": False}):
+                              None, "distributed.worker.profile.enabled": False,
+                              "distributed.worker.multiprocessing-method": method}):
+            if method == "forkserver":
+                _use_fork_server()
             cluster = LocalCluster(n_workers=workers or _DEFAULT_WORKERS, threads_per_worker=1,
                                    processes=True, host="127.0.0.1", dashboard_address=None,
                                    silence_logs=logging.ERROR)
@@ -679,8 +735,12 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     tables are byte-identical to a single run. ``out/network_annual`` and
     ``out/failures.parquet`` are rewritten on every run and cover the sites of
     this network file only; a site that fails keeps whatever folder an earlier run
-    left, but is left out of the network table. Worker processes are spawned, so a
-    script that calls this function must do so under ``if __name__ == "__main__":``.
+    left, but is left out of the network table. Local worker processes are spawned
+    or, on Linux, forked from a server process (:func:`_start_method`); both import
+    the calling script again, so a script that calls this function must do so under
+    ``if __name__ == "__main__":``. The fork server starts with the first local
+    cluster of a process and keeps that moment's environment variables for the
+    workers of later clusters.
     """
     network = read_sites_file(sites_file)
     out = (Path(out) if out is not None else network.out).resolve()

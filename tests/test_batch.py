@@ -11,6 +11,7 @@ practice of Arrow readers).
 
 import hashlib
 import io
+import json
 import os
 import subprocess
 import sys
@@ -411,22 +412,58 @@ def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster
         batch.read_network(report.out, "weekly")
 
 
-def test_local_workers_run_without_the_statistical_profiler():
-    """fluxpart's own local cluster switches off Dask's 10-ms stack sampler (it cost 15 % of
-    a site's CPU in a worker) and adds no malloc setting of its own to the workers' (they
-    inherit this process's); the environment of this process is left as it was."""
-    import os
-
-    from fluxpart.batch import _client
-
+_LOCAL_WORKER_SETTINGS = """
+import json, os, sys
+from fluxpart.batch import _client
+if __name__ == "__main__":
     before = dict(os.environ)
     client, local = _client(None, 1)
     try:
         settings = client.run(lambda: (
             __import__("dask").config.get("distributed.worker.profile.enabled"),
-            __import__("os").environ.get("MALLOC_TRIM_THRESHOLD_")))
+            __import__("os").environ.get("MALLOC_TRIM_THRESHOLD_"),
+            "fluxpart.pipeline" in __import__("sys").modules))
     finally:
         client.close()
         local.close()
-    assert list(settings.values()) == [(False, before.get("MALLOC_TRIM_THRESHOLD_"))]
-    assert dict(os.environ) == before
+    print(json.dumps({"workers": list(settings.values()),
+                      "malloc": before.get("MALLOC_TRIM_THRESHOLD_"),
+                      "environment_kept": dict(os.environ) == before}))
+"""
+
+
+def test_local_workers_run_without_the_statistical_profiler(tmp_path):
+    """fluxpart's own local cluster switches off Dask's 10-ms stack sampler (it cost 15 % of
+    a site's CPU in a worker) and adds no malloc setting of its own to the workers' (they
+    inherit the client process's); the environment of the client is left as it was. Where
+    the workers fork from a server (Linux), they hold fluxpart's pipeline before their first
+    task; spawned workers start without it. In a fresh interpreter: a fork server keeps the
+    environment of its start, and Dask's own clusters (the fixture) write theirs into the
+    process."""
+    from fluxpart.batch import _start_method
+
+    script = tmp_path / "workers.py"
+    script.write_text(_LOCAL_WORKER_SETTINGS, encoding="utf-8")
+    env = {**os.environ, "PYTHONPATH": os.pathsep.join(
+        [str(REPOSITORY), *filter(None, [os.environ.get("PYTHONPATH")])])}
+    env.pop("MALLOC_TRIM_THRESHOLD_", None)
+    done = subprocess.run([sys.executable, str(script)], env=env, cwd=tmp_path,
+                          capture_output=True, text=True, timeout=120, check=True)
+    found = json.loads(done.stdout.strip().splitlines()[-1])
+    assert found == {"workers": [[False, None, _start_method() == "forkserver"]],
+                     "malloc": None, "environment_kept": True}
+
+
+def test_local_workers_fork_from_a_server_on_linux_only():
+    """Python documentation, ``multiprocessing``, "Contexts and start methods" (3.11):
+    Windows offers spawn only; on macOS spawn is the default since Python 3.8 because
+    forking can crash there (system libraries are not fork-safe); forkserver exists on Unix
+    platforms that pass file descriptors over pipes. fluxpart forks from a server on Linux
+    only and keeps Dask's spawn elsewhere."""
+    from fluxpart.batch import _start_method
+
+    assert _start_method("linux", ("fork", "spawn", "forkserver")) == "forkserver"
+    assert _start_method("linux", ("fork", "spawn")) == "spawn"
+    assert _start_method("darwin", ("spawn", "fork", "forkserver")) == "spawn"
+    assert _start_method("win32", ("spawn",)) == "spawn"
+    assert _start_method() in __import__("multiprocessing").get_all_start_methods()
