@@ -670,8 +670,9 @@ def _client(scheduler, workers):
     # dashboard these local clusters do not serve; it took 15 % of the CPU of a
     # site (3 demo site-years in one worker: 10.2 s with it, 8.7 s without).
     # Workers fork from a server that has imported fluxpart where the platform allows it
-    # (see _start_method): 2 workers started and one demo site each, 5.7 -> 4.7 s wall and
-    # 6.0 -> 4.8 s CPU of all processes (tests/benchmarks/bench_batch.py for whole batches).
+    # (see _start_method): 2 workers started and one demo site each, 5.2-6.2 -> 4.4-4.9 s
+    # CPU of all processes (the imports paid once, not per worker); the wall time gains
+    # less on an idle machine, where spawned workers import side by side on two cores.
     method = _start_method()
     saved = dict(os.environ)
     try:

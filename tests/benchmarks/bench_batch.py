@@ -10,9 +10,9 @@ seeds 0..N-1, grassland and maize alternating) processed with the default settin
 cluster (processes, one thread each, 127.0.0.1) and ``force=True``: "cold" times
 include starting and closing the cluster and the workers' first imports, "warm"
 times are a second batch on a cluster already running. For comparison, the same sites are
-processed one after another in this process without Dask. Note that the pipeline
-itself already runs the u* scenarios on two threads, so one worker does not mean
-one busy core.
+processed one after another in this process without Dask. On Linux the local workers
+fork from a server process that has imported fluxpart (``fluxpart.batch._start_method``),
+so the cold times include that server's start and imports once.
 """
 
 from __future__ import annotations
