@@ -39,6 +39,12 @@ paper (``donors="similar_conditions_only"``) a night gap at Rg = 0 takes every
 record with Rg <= 50 W m-2, twilight included, where photosynthesis is already
 under way: that biases filled night NEE, and annual NEE, low.
 
+Radiation window. With separate donors, a day gap whose ±50 W m-2 window would reach
+below the lowest Rg of a day record (the night threshold) takes a window centred on its
+own Rg instead (``rg_window="centred"``, the default since 0.8.0; see
+:func:`centred_rg_tolerance`): otherwise dawn and dusk gaps are filled from brighter
+records and take up too much CO2. ``rg_window="fixed"`` keeps ±50 W m-2 for every gap.
+
 Time windows are measured in time, not in record counts: ±K days around t is every
 record within K·(records per day) records of t, and the diurnal course at ±1 h
 takes the records within ±2 records (30-min data) or ±1 record (60-min data) of
