@@ -209,7 +209,7 @@ SITES = [
              anomaly_sd=3.5, veg="crop", lai_max=5.5, pmax=95.0, alpha=0.06,
              t_opt=(8.0, 32.0, 45.0), vpd_form="ramp", vpd_par=(10.0, 45.0), sow=125,
              harvest=280, sink=0.2, q10=2.2, q10_amp=0.4, ra_share=0.35, thr=0.10,
-             step_share=0.7, seed=17),
+             step_share=0.5, seed=17),
     SiteYear(8, "Fenby Wold winter wheat", 52.6, -0.2, 0.0, "2022-01-01", "2023-01-01",
              30, "semicolon_comma_end", "short", 10.0, 6.5, 8.0, 0.48, 0.05, 330, 0.8, 160.0,
              veg="wheat", lai_max=5.0, pmax=45.0, alpha=0.04, t_opt=(0.0, 22.0, 36.0),
@@ -545,11 +545,13 @@ def generate(s: SiteYear):
         prev_lost = np.r_[0.0, lost_ep[:-1]]
         release = np.where(morning, prev_lost[episode] / np.maximum(n_rel[episode], 1), 0.0)
         if s.layout == "storage_iso_start":
-            # stored part (60 % of the loss) measured in the profile; 40 % advected away
-            stored = 0.6 * lost
-            storage = np.where(night, stored, 0.0) - 0.6 * release
-            measured = measured + 0.6 * release
-            flush_added = 0.6 * release - np.where(night, stored, 0.0)
+            # 60 % of the night's loss stays in the air below the sensor and is measured by
+            # the profile (storage column); 40 % is advected away. The turbulent flux sees
+            # the stored CO2 when it leaves in the morning; turbulent + storage = true NEE
+            # except for the advective loss at night.
+            stored = np.where(night, 0.6 * lost, 0.0)
+            storage = stored - 0.6 * release
+            measured = measured + stored                 # turbulent + storage
         else:
             measured = measured + s.flush * release
             flush_added = s.flush * release
@@ -711,7 +713,7 @@ def write_site(s: SiteYear, frame: pd.DataFrame, folder: Path) -> Path:
                             "us": _num(f["ustar"], 3), "ts": _num(f["tsoil"], 2)})
         out[keep].to_csv(folder / "flux_utc.csv", index=False, na_rep="")
         inp = dict(path="flux_utc.csv", time_column="time_utc", time_format="ISO8601",
-                   time_marks="end", time_zone="UTC", missing=[])
+                   time_marks="end", missing=[])
         cols = dict(nee="fc", rg="swin", tair="ta", vpd="vpd_pa", ustar="us", tsoil="ts")
         extra_units = dict(vpd="Pa")
     elif lay in ("civil_dst_glob", "civil_dst_sydney"):
