@@ -1,0 +1,72 @@
+"""Robustness of the auditor's, the modeller's and the network operator's paths (round 3).
+
+Contracts checked (README "Command line", "Output files", "Audit workflow"): a user
+error is one ``error:`` line and exit 2 with nothing written; a result folder holds
+only the files its manifest lists; result files are meant to be shared. External
+facts: POSIX permission bits (``stat.S_IMODE``; 0o755 = owner rwx, group and others
+r-x), CF-1.10 (Eaton et al. 2022) where named.
+"""
+
+import shutil
+import stat
+
+import pytest
+
+from fluxpart.cli import main
+from fluxpart.demo import write_example
+from fluxpart.manifest import read_manifest
+from fluxpart.resultdir import check_folder
+
+
+def _network(tmp_path):
+    """A network file listing the invented example site (nothing is processed here)."""
+    write_example(tmp_path / "site")
+    sites = tmp_path / "SITES.toml"
+    sites.write_text('[batch]\nsites = ["site/*.toml"]\n', encoding="utf-8")
+    return sites
+
+
+def _one_error_line(capsys):
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: "), err
+    return err[0]
+
+
+def test_batch_out_naming_a_file_is_one_error_line(tmp_path, capsys):
+    """It raised FileExistsError with a traceback."""
+    sites = _network(tmp_path)
+    target = tmp_path / "notes.txt"
+    target.write_text("keep me", encoding="utf-8")
+    assert main(["batch", str(sites), "--out", str(target), "--quiet"]) == 2
+    assert "is an existing file" in _one_error_line(capsys)
+    assert target.read_text(encoding="utf-8") == "keep me"
+
+
+@pytest.mark.parametrize("below", ["", "network"])
+def test_batch_out_in_a_result_folder_is_refused_before_any_work(written_demo, tmp_path,
+                                                                 capsys, below):
+    """It wrote site folders and network tables into the result folder, which then failed
+    its own manifest check (verify: NOT reproduced)."""
+    sites = _network(tmp_path)
+    result = tmp_path / "result"
+    shutil.copytree(written_demo[1], result)
+    out = result / below if below else result
+    assert main(["batch", str(sites), "--out", str(out), "--quiet"]) == 2
+    assert "result folder" in _one_error_line(capsys)
+    assert check_folder(result, read_manifest(result)) == []
+
+
+def test_network_dataset_folders_are_readable_by_others(written_demo, tmp_path):
+    """The network datasets were left 0700 by mkdtemp while the site folders are 0755."""
+    from fluxpart import batch
+    from fluxpart.store import read_table
+
+    folder = written_demo[1]
+    outcome = batch.SiteOutcome(key="quillmoor", config="site.toml", directory=str(folder),
+                                status="written", site=read_manifest(folder)["site"],
+                                annual=read_table(folder / "annual.parquet"))
+    out = tmp_path / "network"
+    out.mkdir()
+    batch._write_network([outcome], out)
+    for name in batch.NETWORK_DATASETS.values():
+        assert stat.S_IMODE((out / name).stat().st_mode) == 0o755, name
