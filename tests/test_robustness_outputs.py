@@ -7,14 +7,17 @@ facts: POSIX permission bits (``stat.S_IMODE``; 0o755 = owner rwx, group and oth
 r-x), CF-1.10 (Eaton et al. 2022) where named.
 """
 
+import json
 import shutil
 import stat
 
 import pytest
+from bundles import make_bundle
 
 from fluxpart.cli import main
 from fluxpart.demo import write_example
-from fluxpart.manifest import read_manifest
+from fluxpart.manifest import manifest_seal, read_manifest
+from fluxpart.pipeline import process_site_config
 from fluxpart.resultdir import check_folder
 
 
@@ -70,3 +73,52 @@ def test_network_dataset_folders_are_readable_by_others(written_demo, tmp_path):
     batch._write_network([outcome], out)
     for name in batch.NETWORK_DATASETS.values():
         assert stat.S_IMODE((out / name).stat().st_mode) == 0o755, name
+
+
+@pytest.fixture(scope="module")
+def bundle(tmp_path_factory):
+    """A short bundle: site config, input and the result folder `out` beside them."""
+    root = tmp_path_factory.mktemp("bundle3")
+    process_site_config(make_bundle(root)).write(root / "out")
+    return root
+
+
+@pytest.fixture
+def copy(bundle, tmp_path):
+    target = tmp_path / "bundle"
+    shutil.copytree(bundle, target)
+    return target
+
+
+def test_verify_does_not_call_another_fluxpart_release_a_last_digit_matter(copy, capsys):
+    """A result of another release: verify said its numbers 'may differ in their last
+    digits', which a changed method (0.8.0 changed the gap filling) contradicts."""
+    path = copy / "out" / "manifest.json"
+    manifest = json.loads(path.read_text(encoding="utf-8"))
+    manifest["versions"]["fluxpart"] = "0.7.0"
+    manifest["seal"] = manifest_seal(manifest)
+    path.write_text(json.dumps(manifest, indent=2), encoding="utf-8")
+    assert main(["verify", str(copy / "out")]) == 0
+    line = next(line for line in capsys.readouterr().out.splitlines()
+                if "written by fluxpart 0.7.0" in line)
+    assert "last digits" not in line and "more than rounding" in line
+
+
+def test_verify_follows_a_config_edited_in_place_to_a_renamed_input(copy, capsys):
+    """The README lets an auditor edit only [input] path to point at a moved input; at the
+    recorded place (no --config) verify ignored the edit and asked for --input."""
+    (copy / "tower.csv").rename(copy / "tower-2021.csv")
+    config = copy / "site.toml"
+    config.write_text(config.read_text(encoding="utf-8").replace(
+        'path = "tower.csv"', 'path = "tower-2021.csv"'), encoding="utf-8")
+    assert main(["verify", str(copy / "out")]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("bit-identical") and "only in [input] path" in out
+
+
+def test_verify_names_a_missing_table_in_one_sentence(copy, capsys):
+    """It printed 'audit: audit.parquet, is listed in the manifest but missing'."""
+    (copy / "out" / "audit.parquet").unlink()
+    assert main(["verify", str(copy / "out")]) == 1
+    assert ("audit: audit.parquet is listed in the manifest but missing from the folder"
+            in capsys.readouterr().out)
