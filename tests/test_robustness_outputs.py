@@ -122,3 +122,18 @@ def test_verify_names_a_missing_table_in_one_sentence(copy, capsys):
     assert main(["verify", str(copy / "out")]) == 1
     assert ("audit: audit.parquet is listed in the manifest but missing from the folder"
             in capsys.readouterr().out)
+
+
+def test_diff_names_a_platform_fact_without_empty_first_and_second(copy, capsys):
+    """It printed "platform machine (x86_64 vs aarch64)  first   second " with nothing after
+    either word."""
+    shutil.copytree(copy / "out", copy / "other")
+    path = copy / "other" / "manifest.json"
+    manifest = json.loads(path.read_text(encoding="utf-8"))
+    manifest["platform"]["machine"] = "pdp11"
+    manifest["seal"] = manifest_seal(manifest)
+    path.write_text(json.dumps(manifest, indent=2), encoding="utf-8")
+    assert main(["diff", str(copy / "out"), str(copy / "other")]) == 1
+    lines = capsys.readouterr().out.splitlines()
+    line = next(line for line in lines if line.strip().startswith("platform machine"))
+    assert line.strip().endswith("vs pdp11)") and "first" not in line
