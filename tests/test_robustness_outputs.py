@@ -137,3 +137,17 @@ def test_diff_names_a_platform_fact_without_empty_first_and_second(copy, capsys)
     lines = capsys.readouterr().out.splitlines()
     line = next(line for line in lines if line.strip().startswith("platform machine"))
     assert line.strip().endswith("vs pdp11)") and "first" not in line
+
+
+def test_netcdf_coordinates_carry_no_fill_value(written_demo, tmp_path):
+    """CF-1.10 section 2.5.1 (Eaton et al. 2022): "Missing data is not allowed in
+    coordinate variables" (m). xarray gave time, day, lat and lon a _FillValue of NaN,
+    which declares that they may be missing; read here with h5netcdf, not xarray."""
+    h5netcdf = pytest.importorskip("h5netcdf")
+    pytest.importorskip("xarray")
+    path = tmp_path / "site.nc"
+    assert main(["export", str(written_demo[1]), "--netcdf", str(path)]) == 0
+    with h5netcdf.File(path, "r") as file:
+        for name in ("time", "day", "lat", "lon"):
+            assert "_FillValue" not in file.variables[name].attrs, name
+        assert "_FillValue" in file.variables["nee"].attrs      # data keep theirs (NaN)
