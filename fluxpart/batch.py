@@ -249,8 +249,8 @@ def read_sites_file(path) -> NetworkFile:
 
     Notes
     -----
-    A pattern keeps only files ending in ``.toml``; a plain path is taken as
-    written. Matches of each pattern are sorted; a config listed twice is kept
+    A pattern keeps only files ending in ``.toml``, other than the network file
+    itself; a plain path is taken as written. Matches of each pattern are sorted; a config listed twice is kept
     once. A site's key is its config's file stem (characters other than letters,
     digits, ``.``, ``_`` and ``-`` become ``_``); stems that occur more than once
     are prefixed with their folder's name (``north/tower.toml`` ->
@@ -274,12 +274,13 @@ def read_sites_file(path) -> NetworkFile:
     if not isinstance(out, str) or not out.strip():
         raise ConfigError(f"[batch] out = {out!r}: expected a folder path (a string, relative "
                           "to the network file)")
-    configs = _expand_sites(table.get("sites"), base)
+    configs = _expand_sites(table.get("sites"), base, path.resolve())
     keys = _site_keys(configs)
     return NetworkFile(path=path.resolve(), out=base / out, sites=tuple(zip(keys, configs, strict=True)))
 
 
-def _expand_sites(patterns, base: Path) -> list[Path]:
+def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Path]:
+    """The site configs the patterns name; a glob's match of the `network` file is dropped."""
     if patterns is None:
         raise ConfigError('[batch] sites is missing; list the site configs, e.g. sites = '
                           '["sites/*.toml"] (paths and globs relative to the network file)')
@@ -293,10 +294,16 @@ def _expand_sites(patterns, base: Path) -> list[Path]:
             raise ConfigError(f"{where}: expected a path or glob pattern (a non-empty string)")
         full = base / pattern
         if glob.has_magic(pattern):
+            # the network file is a .toml file too: a glob beside it (*.toml) is not
+            # meant to list it as a site
             matches = sorted(Path(p) for p in glob.glob(str(full), recursive=True)
-                             if p.endswith(".toml") and Path(p).is_file())
+                             if p.endswith(".toml") and Path(p).is_file()
+                             and Path(p).resolve() != network)
             if not matches:
-                raise ConfigError(f"{where} matches no .toml file (looked for {str(full)!r})")
+                raise ConfigError(f"{where} matches no .toml file other than the network "
+                                  f"file itself (looked for {str(full)!r})")
+        elif full.is_file() and full.resolve() == network:
+            raise ConfigError(f"{where} is the network file itself, not a site config")
         elif full.is_file():
             matches = [full]
         else:

@@ -151,3 +151,18 @@ def test_netcdf_coordinates_carry_no_fill_value(written_demo, tmp_path):
         for name in ("time", "day", "lat", "lon"):
             assert "_FillValue" not in file.variables[name].attrs, name
         assert "_FillValue" in file.variables["nee"].attrs      # data keep theirs (NaN)
+
+
+def test_a_glob_beside_the_network_file_does_not_list_it_as_a_site(tmp_path):
+    """sites = ["*.toml"] beside SITES.toml listed SITES.toml itself as a site, which then
+    failed in every batch ("top-level table [batch] is unknown"), exit 1."""
+    from fluxpart.batch import read_sites_file
+    from fluxpart.errors import ConfigError
+
+    write_example(tmp_path)
+    sites = tmp_path / "SITES.toml"
+    sites.write_text('[batch]\nsites = ["*.toml"]\n', encoding="utf-8")
+    assert [key for key, _ in read_sites_file(sites).sites] == ["quillmoor_grassland"]
+    sites.write_text('[batch]\nsites = ["SITES.toml"]\n', encoding="utf-8")
+    with pytest.raises(ConfigError, match="is the network file itself"):
+        read_sites_file(sites)
