@@ -54,9 +54,9 @@ import pyarrow.parquet as pq
 
 from ._validate import read_toml
 from .config import Config, suggest_key
-from .errors import ConfigError, FluxpartError, InputFileError
+from .errors import ConfigError, FluxpartError, InputFileError, OutputError
 from .fingerprint import code_fingerprint
-from .manifest import CAUTION, MANIFEST_FORMAT, library_versions, read_manifest
+from .manifest import CAUTION, MANIFEST_FILE, MANIFEST_FORMAT, library_versions, read_manifest
 from .resultdir import check_folder
 from .schema import units_for_table
 from .store import atomic_write_bytes, file_sha256, read_table, write_table
@@ -86,6 +86,9 @@ FAILURES_FILE = "failures.parquet"
 
 _BATCH_KEYS = ("out", "sites")
 _DEFAULT_WORKERS = 2
+#: Mode of the network dataset folders: shared like the result folders (readable by all,
+#: writable by the owner); ``tempfile.mkdtemp`` would leave them private (0700).
+_DIR_MODE = 0o755
 _CONNECT_TIMEOUT_SECONDS = 10
 _RESERVED_KEYS = {*NETWORK_DATASETS.values(), FAILURES_FILE}
 _SITE_COLUMNS = {
@@ -246,8 +249,8 @@ def read_sites_file(path) -> NetworkFile:
 
     Notes
     -----
-    A pattern keeps only files ending in ``.toml``; a plain path is taken as
-    written. Matches of each pattern are sorted; a config listed twice is kept
+    A pattern keeps only files ending in ``.toml``, other than the network file
+    itself; a plain path is taken as written. Matches of each pattern are sorted; a config listed twice is kept
     once. A site's key is its config's file stem (characters other than letters,
     digits, ``.``, ``_`` and ``-`` become ``_``); stems that occur more than once
     are prefixed with their folder's name (``north/tower.toml`` ->
@@ -271,12 +274,13 @@ def read_sites_file(path) -> NetworkFile:
     if not isinstance(out, str) or not out.strip():
         raise ConfigError(f"[batch] out = {out!r}: expected a folder path (a string, relative "
                           "to the network file)")
-    configs = _expand_sites(table.get("sites"), base)
+    configs = _expand_sites(table.get("sites"), base, path.resolve())
     keys = _site_keys(configs)
     return NetworkFile(path=path.resolve(), out=base / out, sites=tuple(zip(keys, configs, strict=True)))
 
 
-def _expand_sites(patterns, base: Path) -> list[Path]:
+def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Path]:
+    """The site configs the patterns name; a glob's match of the `network` file is dropped."""
     if patterns is None:
         raise ConfigError('[batch] sites is missing; list the site configs, e.g. sites = '
                           '["sites/*.toml"] (paths and globs relative to the network file)')
@@ -290,10 +294,16 @@ def _expand_sites(patterns, base: Path) -> list[Path]:
             raise ConfigError(f"{where}: expected a path or glob pattern (a non-empty string)")
         full = base / pattern
         if glob.has_magic(pattern):
+            # the network file is a .toml file too: a glob beside it (*.toml) is not
+            # meant to list it as a site
             matches = sorted(Path(p) for p in glob.glob(str(full), recursive=True)
-                             if p.endswith(".toml") and Path(p).is_file())
+                             if p.endswith(".toml") and Path(p).is_file()
+                             and Path(p).resolve() != network)
             if not matches:
-                raise ConfigError(f"{where} matches no .toml file (looked for {str(full)!r})")
+                raise ConfigError(f"{where} matches no .toml file other than the network "
+                                  f"file itself (looked for {str(full)!r})")
+        elif full.is_file() and full.resolve() == network:
+            raise ConfigError(f"{where} is the network file itself, not a site config")
         elif full.is_file():
             matches = [full]
         else:
@@ -503,6 +513,7 @@ def _write_network(outcomes, out: Path) -> pd.DataFrame:
     for name, folder in NETWORK_DATASETS.items():
         staging = Path(tempfile.mkdtemp(prefix=f".{folder}.", dir=out))
         try:
+            os.chmod(staging, _DIR_MODE)
             tables = _unify([_arrow_site(o, name) for o in done], name) if done else []
             for outcome, table in zip(done, tables, strict=True):
                 atomic_write_bytes(staging / f"site={outcome.key}" / "part-0.parquet",
@@ -727,6 +738,8 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     InputFileError, ConfigError
         For a bad network file, an unreachable scheduler or a bad worker count;
         bad site configs or inputs are not raised but reported per site.
+    OutputError
+        If `out` is a file, cannot be made, or is (or lies in) a result folder.
 
     Notes
     -----
@@ -745,9 +758,15 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     """
     network = read_sites_file(sites_file)
     out = (Path(out) if out is not None else network.out).resolve()
+    _check_out(out)
     client, cluster = _client(scheduler, workers)
     try:
-        out.mkdir(parents=True, exist_ok=True)
+        try:
+            out.mkdir(parents=True, exist_ok=True)
+        except OSError as error:      # a file on the way, a read-only place
+            raise OutputError(f"batch output folder {str(out)!r} cannot be made "
+                              f"({error.strerror or error}); choose another --out or "
+                              "[batch] out") from None
         outcomes = _run_tasks(client, network.sites, out, force, progress)
     finally:
         client.close()
@@ -756,6 +775,24 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     failures = _write_failures(outcomes, out)
     table = _write_network(outcomes, out)
     return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures)
+
+
+def _check_out(out: Path) -> None:
+    """Refuse a batch output folder that is a file or is (or lies in) a result folder.
+
+    The batch writes site folders, network datasets and ``failures.parquet`` into
+    `out`; inside a result folder they would be files its manifest does not list,
+    so ``load``, ``verify`` and ``diff`` would refuse that result afterwards.
+    """
+    if out.exists() and not out.is_dir():
+        raise OutputError(f"batch output folder {str(out)!r} is an existing file, not a "
+                          "folder; choose another --out or [batch] out")
+    for folder in (out, *out.parents):
+        if (folder / MANIFEST_FILE).is_file():
+            where = "is" if folder == out else "is inside"
+            raise OutputError(f"batch output folder {str(out)!r} {where} the result folder "
+                              f"{str(folder)!r}, which must hold only the files its manifest "
+                              "lists; choose another --out or [batch] out outside it")
 
 
 def _run_tasks(client, sites, out: Path, force: bool, progress) -> list[SiteOutcome]:

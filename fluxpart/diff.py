@@ -83,7 +83,10 @@ class DiffReport:
                          "annual value(s)")
             width = max((len(f"{s} {n}") for s, n, _, _ in self.items), default=0)
             for section, name, a, b in self.items:
-                lines.append(f"  {f'{section} {name}':<{width}}  first {a}  second {b}")
+                if a == b == "":        # a platform fact names both values itself
+                    lines.append(f"  {section} {name}")
+                else:
+                    lines.append(f"  {f'{section} {name}':<{width}}  first {a}  second {b}")
             if not self.annual.empty:
                 lines.append("How the annual numbers moved (units of each column; change = "
                              "second - first; relative = change / |first|):")

@@ -34,8 +34,8 @@ installed).
 References
 ----------
 Eaton, B. et al. (2022). NetCDF Climate and Forecast (CF) Metadata Conventions,
-version 1.10. https://cfconventions.org (sections 3.3 standard names, 3.5 flags,
-4.4 time, 7.1 cell boundaries, 7.3 cell methods, 9 discrete sampling geometries).
+version 1.10. https://cfconventions.org (sections 2.5.1 missing data, 3.3 standard names,
+3.5 flags, 4.4 time, 7.1 cell boundaries, 7.3 cell methods, 9 discrete sampling geometries).
 """
 
 from __future__ import annotations
@@ -277,6 +277,10 @@ def to_xarray(result):
     for variable in dataset.data_vars.values():
         # NaN marks a missing float; the flags have no missing value (no _FillValue)
         variable.encoding["_FillValue"] = np.nan if variable.dtype.kind == "f" else None
+    for name in ("time", "day", "lat", "lon"):
+        # coordinates have no missing values (CF-1.10 section 2.5.1), so no _FillValue,
+        # which xarray would otherwise give every float variable
+        dataset[name].encoding["_FillValue"] = None
     from . import __version__
 
     dataset.attrs = {

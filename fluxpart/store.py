@@ -6,7 +6,7 @@ left behind). Every column's unit and description are
 stored twice, so that every reader finds them:
 
 - in the Arrow field metadata (keys ``unit`` and ``description``), which pyarrow
-  and pandas show;
+  shows (``pandas.read_parquet`` drops it);
 - in the file-level key-value metadata under the key ``fluxpart`` (JSON), which
   DuckDB (``parquet_kv_metadata``), Polars (``read_parquet_metadata``) and any
   Parquet reader show: ``{"table", "index", "columns": {name: {"unit",

@@ -152,7 +152,7 @@ class Difference:
         if self.kind in ("seal", "extra"):
             return f"{self.table}: {self.column} {self.stored}"
         if self.kind == "file":
-            return f"{self.table}: {self.stored}, {self.recomputed}"
+            return f"{self.table}: {self.stored} {self.recomputed}"
         if self.kind == "manifest":
             return (f"manifest field {self.column!r} differs: stored {self.stored}, "
                     f"recomputed {self.recomputed}")
@@ -455,7 +455,14 @@ def _environment(manifest: dict) -> tuple[list[str], bool]:
     if versions is None:
         out.append("library versions are not recorded in the manifest")
     for name, recorded in sorted((versions or {}).items()):
-        if current.get(name) != recorded:
+        if current.get(name) == recorded:
+            continue
+        if name == "fluxpart":
+            # another release may change a method: its numbers can move by any amount
+            out.append(f"fluxpart {current.get(name)} is running, the result was written by "
+                       f"fluxpart {recorded}; another release can change methods and "
+                       "numbers by more than rounding (see its changelog)")
+        else:
             out.append(f"{name} {current.get(name, 'not installed')} is installed, the result "
                        f"was written with {recorded}; numbers may differ in their last digits")
     code = code or {}
@@ -515,7 +522,7 @@ def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: l
     A config given with ``--config`` must have the recorded SHA-256, or differ from
     the recorded text only in its ``[input] path`` (an auditor pointing it at a
     moved input): then the recorded text drives the rerun and the given file
-    locates the input.
+    locates the input. The config at the recorded place is used the same way.
     """
     sha = recorded.get("sha256")
     if given is not None:
@@ -537,6 +544,12 @@ def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: l
     if _matching(path, sha):
         return path, path, None
     copy = _recorded_copy(recorded, scratch)
+    if path is not None and path.is_file() and _same_but_input_path(path, copy):
+        # edited where it lies to point at a moved or renamed input, as --config allows
+        notes.append(f"site config: {str(path)!r} differs from the recorded one only in "
+                     "[input] path; the recorded text was used, the file only to find the "
+                     "input")
+        return copy, path, None
     if copy is not None:
         where = (f"the file at {str(path)!r} is another version" if path is not None
                  and path.is_file() else f"it is not at {str(path)!r}")
@@ -702,7 +715,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
             stored_tables[name] = read_table(path)
         except (FluxpartError, OSError, ValueError) as error:
             differences.append(Difference(name, "file", stored=entry["file"],
-                                          recomputed=f"unreadable: {error}"))
+                                          recomputed=f"is unreadable: {error}"))
     environment, code_changed = _environment(manifest)
     provenance = manifest["provenance"]
     if "demo" not in provenance and not (isinstance(provenance.get("input"), dict)
