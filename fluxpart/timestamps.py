@@ -58,6 +58,9 @@ _HOUR_24 = (
 
 #: IANA zone names (or their first part) that denote a fixed offset rather than a place.
 _OFFSET_ZONE_PREFIXES = frozenset({"UTC", "Etc", "GMT", "UCT", "Zulu", "Universal"})
+#: Zone names of UTC itself: stamps that carry their offset agree with any of them.
+_UTC_NAMES = frozenset({"UTC", "Etc/UTC", "Etc/UCT", "UCT", "Zulu", "Etc/Zulu", "Universal",
+                        "Etc/Universal"})
 
 
 @dataclass(frozen=True)
@@ -399,6 +402,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     if time_format.endswith("Z") and not time_format.endswith("%Z") and time_zone is None:
         time_format = time_format[:-1] + "%z"       # "...%SZ": the Z of UTC, not a letter
     with_offset = _carries_offset(text, time_format)
+    if with_offset and time_zone in _UTC_NAMES:
+        time_zone = None      # stamps in UTC that say so, and time_zone = "UTC": consistent
     if with_offset and time_zone is not None:
         raise TimestampError(f"{_time_setting(time_columns)}: stamps in {source!r} carry a UTC "
                              f"offset ({text.iloc[0]!r}), so [input] time_zone = "

@@ -146,3 +146,17 @@ def test_interval_change_within_the_record_is_warned():
     assert interval_change_warning(short, 30) is None
     assert interval_change_warning(lost, 30) is None
     assert interval_change_warning(hour, 60) is None
+
+
+@pytest.mark.parametrize("time_format", ["ISO8601", "%Y-%m-%dT%H:%M:%S%z"])
+def test_stamps_in_utc_that_say_so_agree_with_time_zone_utc(time_format):
+    """Stamps ending in Z (UTC, ISO 8601) read with [input] time_zone = "UTC", as the README
+    advises for a logger kept on UTC, are the same instants as without it; before, the
+    two were refused as contradicting each other."""
+    text = pd.Series(["2021-06-01T00:00:00Z", "2021-06-01T00:30:00Z", "2021-06-01T01:00:00Z"])
+    arguments = dict(time_columns=("t",), source="f", lines=np.arange(3) + 2, utc_offset=1.0)
+    plain = parse_stamps(text, time_format, **arguments)
+    with_zone = parse_stamps(text, time_format, **arguments, time_zone="UTC")
+    assert list(with_zone.stamps) == list(plain.stamps)
+    # local standard time of a site at UTC+1 (ISO 8601: Z is UTC)
+    assert plain.stamps[0] == pd.Timestamp("2021-06-01 01:00")
