@@ -41,6 +41,7 @@ from . import (
     schema,
     screening,
     solar,
+    storage_check,
     timestamps,
     uncertainty,
     ustar,
@@ -716,6 +717,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     monthly = agreement.method_agreement(budgets.monthly, config.agreement_margin)
     annual = agreement.method_agreement(budgets.annual, config.agreement_margin)
     warnings.extend(agreement.disagreements(annual, config.agreement_margin))
+    warnings.extend(storage_check.release_warnings(storage_check.morning_release(
+        frame.index, nee_measured, frame["ustar"].to_numpy(dtype=float), runs["central"],
+        is_night, day.reco - day.gpp, year_keys, interval)))
     step("budgets")
     annual = annual.assign(ustar_threshold=timeseries["ustar_threshold"].groupby(year_keys)
                            .max().reindex(annual.index).to_numpy())

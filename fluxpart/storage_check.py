@@ -1,0 +1,156 @@
+"""Morning release of CO2 stored below the sensor on calm nights (a warning, not a correction).
+
+On a calm night the CO2 respired below an eddy-covariance sensor is not carried up to it:
+it is held in the air of the canopy and comes out once the morning's turbulence starts.
+NEE is the turbulent flux plus the change of the CO2 stored below the sensor (the storage
+term); a tower that measures only the turbulent flux sees too little respiration on calm
+nights and too much in the morning after them. The u* filter removes the calm nights and
+fills them from turbulent ones, but it keeps the flushed mornings, so the night's
+respiration is counted twice and annual NEE comes out too high (too little uptake). Over a
+short canopy the air below the sensor holds little CO2; over a forest it can hold hours of
+respiration.
+
+This module looks for that release in the measured records: mornings after calm nights
+should agree with mornings after turbulent nights once the light, temperature and VPD of
+each morning are accounted for (by the daytime method's fitted NEE, which follows them).
+It reports a warning with the size of the excess; it changes no number.
+
+References
+----------
+Finnigan, J. (2006). The storage term in eddy flux calculations. Agricultural and Forest
+Meteorology 136, 108–113. doi:10.1016/j.agrformet.2004.12.010
+
+Papale, D. et al. (2006). Towards a standardized processing of net ecosystem exchange
+measured with eddy covariance technique: algorithms and uncertainty estimation.
+Biogeosciences 3, 571–583 (NEE as the turbulent flux plus the storage term, before the
+u* filter) (m).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from . import units
+
+__all__ = ["MORNING_HOURS", "morning_release"]
+
+#: Hours after the end of a night that count as its morning: the release of stored CO2
+#: takes the first hours of daytime mixing (common practice (m)).
+MORNING_HOURS = 3.0
+#: A night is calm where at least half its records with u* lie below the u* threshold.
+CALM_SHARE = 0.5
+#: A morning counts where it holds at least this many measured records.
+MIN_MORNING_RECORDS = 2
+#: The excess must stand this many standard errors above zero (one-sided p ~ 0.001, so a
+#: false alarm is rare even over hundreds of site-years) ...
+MIN_Z = 3.0
+#: ... and amount to at least this much a year [g C m-2]: twice the median annual NEE
+#: error of the calibration benchmark (DEVELOPERS.md), so that only a release that
+#: matters beside the budget's other errors is named.
+MIN_ANNUAL_EXCESS = 10.0
+
+
+def morning_release(index, nee_measured, ustar, threshold, is_night, nee_model, year_keys,
+                    interval_minutes) -> list[dict]:
+    """Excess NEE of the mornings after calm nights over those after turbulent nights.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Regular time axis of the records (interval starts).
+    nee_measured : array_like
+        Measured NEE kept by screening [µmol m-2 s-1]; NaN where missing or rejected.
+    ustar : array_like
+        Friction velocity [m s-1].
+    threshold : array_like
+        The u* threshold that applies to each record [m s-1].
+    is_night : array_like of bool
+        Night records.
+    nee_model : array_like
+        NEE that the light, temperature and VPD of each record explain [µmol m-2 s-1]:
+        the daytime method's fitted Reco − GPP.
+    year_keys : array_like
+        Budget year of each record.
+    interval_minutes : int
+        Record length [min].
+
+    Returns
+    -------
+    list of dict
+        One per budget year with mornings of both kinds: ``year``, ``calm_mornings``,
+        ``other_mornings``, ``excess`` (mean residual after calm nights minus after the
+        others [µmol m-2 s-1]), ``z`` (excess over its standard error), ``annual_excess``
+        (the excess over every morning record after a calm night, measured or filled
+        [g C m-2]; a lower bound of the release: mornings after nights counted as
+        turbulent release some too, and the daytime fit takes up part of it) and
+        ``flagged`` (z ≥ :data:`MIN_Z` and annual excess ≥ :data:`MIN_ANNUAL_EXCESS`).
+
+    Notes
+    -----
+    A night is a run of night records; its calm share is the share of its records with
+    u* that lie below the threshold. Its morning is the records of the following
+    :data:`MORNING_HOURS` that are not night. The residual of a morning is the mean of
+    measured minus modelled NEE over its measured records; mornings after calm nights
+    (share ≥ :data:`CALM_SHARE`) are compared with the others by the difference of
+    their mean residuals and its standard error (Welch). The model absorbs each
+    morning's light and weather, so a difference left is what the two kinds of
+    mornings do not share: the preceding night.
+    """
+    nee = np.asarray(nee_measured, dtype=float)
+    ustar = np.asarray(ustar, dtype=float)
+    threshold = np.asarray(threshold, dtype=float)
+    night = np.asarray(is_night, dtype=bool)
+    residual = nee - np.asarray(nee_model, dtype=float)
+    years = np.asarray(year_keys)
+    per_morning = max(1, int(round(MORNING_HOURS * 60 / int(interval_minutes))))
+    n = night.size
+    edges = np.flatnonzero(np.diff(np.r_[0, night.astype(np.int8), 0]))
+    starts, ends = edges[::2], edges[1::2]            # night runs [start, end)
+    rows = {}
+    for start, end in zip(starts, ends, strict=True):
+        if end >= n:
+            continue
+        calm_known = np.isfinite(ustar[start:end]) & np.isfinite(threshold[start:end])
+        if not calm_known.any():
+            continue
+        calm = np.mean(ustar[start:end][calm_known] < threshold[start:end][calm_known]) \
+            >= CALM_SHARE
+        stop = min(n, end + per_morning)
+        morning = np.arange(end, stop)
+        morning = morning[~night[morning]]
+        kept = morning[np.isfinite(residual[morning])]
+        year = years[end]
+        entry = rows.setdefault(year, {"calm": [], "other": [], "calm_records": 0})
+        if calm:
+            entry["calm_records"] += morning.size
+        if kept.size >= MIN_MORNING_RECORDS:
+            entry["calm" if calm else "other"].append(float(residual[kept].mean()))
+    out = []
+    grams = float(units.flux_to_carbon(1.0, int(interval_minutes)))
+    for year, entry in rows.items():
+        calm, other = np.asarray(entry["calm"]), np.asarray(entry["other"])
+        if calm.size < 2 or other.size < 2:
+            continue
+        excess = float(calm.mean() - other.mean())
+        se = float(np.sqrt(calm.var(ddof=1) / calm.size + other.var(ddof=1) / other.size))
+        z = excess / se if se > 0 else 0.0
+        annual = excess * entry["calm_records"] * grams
+        out.append({"year": year, "calm_mornings": int(calm.size),
+                    "other_mornings": int(other.size), "excess": excess, "z": z,
+                    "annual_excess": annual,
+                    "flagged": bool(z >= MIN_Z and annual >= MIN_ANNUAL_EXCESS)})
+    return out
+
+
+def release_warnings(rows) -> list[str]:
+    """One warning per budget year whose morning release was flagged by :func:`morning_release`."""
+    return [f"{row['year']}: measured NEE in the {MORNING_HOURS:.0f} h after calm nights "
+            f"exceeds that after turbulent nights by {row['excess']:+.2f} µmol m-2 s-1 "
+            f"({row['calm_mornings']} and {row['other_mornings']} mornings, "
+            f"{row['z']:.1f} standard errors), at least about "
+            f"{row['annual_excess']:+.0f} g C m-2 in the year: CO2 stored below the sensor on calm nights released after sunrise. "
+            "The u* filter removes the calm nights but keeps these mornings, so annual NEE "
+            "counts that respiration twice (too little uptake). Add the storage term to NEE "
+            "([input.columns] storage) if the file lacks it; the stated intervals do not "
+            "include this error"
+            for row in rows if row["flagged"]]
