@@ -1592,7 +1592,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       * the systematic fill bias B: the mean artificial-gap error per filled
         record times the filled records (fully correlated over the period),
         added as max(B² − S², 0), S its standard error (reported as
-        ``nee_uncertainty_gapfill_bias_se``). B is **not** subtracted from the
+        ``nee_uncertainty_gapfill_bias_se``; the night and day classes' biases
+        are estimated from different artificial gaps, so their variances add,
+        Bienaymé's formula, unless one class borrows the other's). B is **not** subtracted from the
         estimate (on known-truth site-years it hardly correlated with the actual
         error). The error of an estimate left uncorrected holds the squared bias
         (Nμ)², not the spread of its estimate; E[B²] = (Nμ)² + S², so
@@ -1694,6 +1696,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     bias = bias_se = pd.Series(0.0, index=index)
     gapfill_known = model is not None and not model[["bias", "independent_variance"]].isna().all().all()
     if gapfill_known:
+        # the two classes' biases come from different artificial gaps (independent
+        # estimates), unless a class without scores takes the other's
+        shared_estimate = bool(model["bias"].isna().any())
         model = model.fillna(model.mean(numeric_only=True))   # a class without scores: the other's
         if "correlated_variance_long" not in model:      # a model table from before 0.7.0
             model = model.assign(correlated_variance_long=model["correlated_variance"])
@@ -1714,7 +1719,10 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             # a fill averages measured records: 2 cov(fill, the period's measured records)
             donors = per_period(np.where(records, 2.0 * donor_noise, 0.0))
             bias = per_period(np.where(records, pick["bias"], 0.0)) * factor
-            bias_se = per_period(np.where(records, pick["bias_se"], 0.0)) * factor
+            se_night = per_period(np.where(records & night, pick["bias_se"], 0.0)) * factor
+            se_day = per_period(np.where(records & ~night, pick["bias_se"], 0.0)) * factor
+            # independent estimates: their variances add (Bienaymé); one shared: N s
+            bias_se = se_night + se_day if shared_estimate else np.hypot(se_night, se_day)
             # E[B²] = (Nμ)² + S²: B² - S² estimates the squared bias (positive part; Notes)
             squared_bias = np.maximum(np.square(bias) - np.square(bias_se), 0.0)
             return (independent + correlated + neighbours + donors) * factor**2 \

@@ -556,11 +556,41 @@ def test_fill_bias_part_is_the_bias_itself(bias, bias_se):
     out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
     grams = 1800 * 12.011e-6
     assert out["nee_uncertainty_gapfill_bias"] == pytest.approx(23 * bias * grams)
-    assert out["nee_uncertainty_gapfill_bias_se"] == pytest.approx(23 * bias_se * grams)
-    squared = max((23 * bias * grams) ** 2 - (23 * bias_se * grams) ** 2, 0.0)
+    # 5 night and 18 day records: the classes' estimates are independent, so their
+    # variances add (Bienaymé's formula, elementary statistics), S = √(5² + 18²) s
+    se = np.hypot(5, 18) * bias_se * grams
+    assert out["nee_uncertainty_gapfill_bias_se"] == pytest.approx(se)
+    squared = max((23 * bias * grams) ** 2 - se ** 2, 0.0)
     assert out["nee_uncertainty_gapfill"] == pytest.approx(np.sqrt(squared))
     assert (out["nee_uncertainty_gapfill"] > 0) == (bias > bias_se)
 
+
+
+def test_fill_bias_se_of_a_borrowed_class_is_the_same_estimate():
+    """A class without scored gaps takes the other class's bias: one estimate for every
+    filled record, so its standard error scales with their count, S = N s (elementary
+    statistics: the sum of N copies of one estimate)."""
+    from fluxpart.uncertainty import UncertaintyInputs, period_uncertainty
+
+    index = pd.date_range("2021-06-01", periods=4 * 48, freq="30min")
+    n = len(index)
+    measured = np.ones(n, dtype=bool)
+    measured[10:30] = measured[100:103] = False                    # 5 night + 18 day
+    model = pd.DataFrame({"bias": [np.nan, 0.02], "bias_se": [np.nan, 0.005],
+                          "independent_variance": [np.nan, 0.0],
+                          "correlated_variance": [np.nan, 0.0]},
+                         index=pd.Index(["night", "day"], name="record_class"))
+    zeros = np.zeros(n)
+    fluxes = pd.DataFrame({name: np.ones(n) for name in (
+        "nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")}, index=index)
+    inputs = UncertaintyInputs(
+        measured=measured, noise_sigma=zeros, is_night=index.hour < 6, fluxes=fluxes, runs={},
+        gapfill_model=model, e0_delta=zeros, night_window=np.zeros(n, dtype=int),
+        night_relative_se=np.full(n, np.nan), day_window=np.zeros(n, dtype=int),
+        day_relative_se=np.full(n, np.nan))
+    out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
+    grams = 1800 * 12.011e-6
+    assert out["nee_uncertainty_gapfill_bias_se"] == pytest.approx(23 * 0.005 * grams)
 
 def _random_walk_windows(rng, centres_days, drift, relative_se=0.0):
     """Windows whose log Rref follows a random walk of variance `drift` per day."""
