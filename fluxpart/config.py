@@ -749,7 +749,10 @@ def _check(config: Config) -> None:
     for name, choices in _CHOICES.items():
         value = getattr(config, name)
         if not isinstance(value, str) or value not in choices:
-            _refuse(name, value, f"one of {_choices_text(choices)}")
+            close = difflib.get_close_matches(value, choices, n=1, cutoff=0.6) \
+                if isinstance(value, str) else []
+            hint = f" (did you mean {close[0]!r}?)" if close else ""
+            _refuse(name, value, f"one of {_choices_text(choices)}{hint}")
     for name, rule in _RANGES.items():
         value = getattr(config, name)
         if name == "ustar_min_threshold" and value is None:
