@@ -137,7 +137,7 @@ def test_from_toml_missing_and_invalid(tmp_path):
     ({"ustar_plateau_reference": 0.0}, r"ustar_plateau_reference = 0.0.*above 0"),
     ({"gapfill_donors": "twilight"}, r'gapfill_donors = "twilight".*"separate_day_night"'),
     ({"gapfill_rg_window": "wide"}, r'gapfill_rg_window = "wide".*"centred"'),
-    ({"gapfill_rg_window": "centered"}, r"did you mean 'centred'\?"),
+    ({"gapfill_rg_window": "centered"}, r'gapfill_rg_window = "centered".*did you mean .centred.\?'),
     ({"gapfill_interpolation_hours": -1.0}, r"gapfill_interpolation_hours = -1.0"),
     ({"gapfill_min_donors": 0}, r"gapfill_min_donors = 0.*whole number"),
     ({"daytime_min_points": 0}, r"daytime_min_points = 0"),
