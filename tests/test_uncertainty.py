@@ -530,21 +530,15 @@ def test_structural_part_is_the_method_difference_the_parameter_parts_do_not_exp
     assert out["reco_nighttime_uncertainty_total"] == pytest.approx(np.hypot(p_night, expected))
 
 
-@pytest.mark.parametrize("bias, bias_se", [(0.02, 0.005), (0.005, 0.02)])
-def test_fill_bias_part_is_the_bias_itself(bias, bias_se):
-    """The fill error of N records holds their common bias Nμ; its estimate B has
-    E[B²] = (Nμ)² + S² (elementary statistics), so max(B² − S², 0) estimates (Nμ)²
-    (the positive-part estimator of a squared mean): a bias resolved by its estimate
-    counts nearly whole, one inside its own standard error not at all. S is reported."""
+def _one_period_with_fills(model):
+    """period_uncertainty of one period of 4 days with 23 filled records (5 night, 18 day)
+    and no other error, under the gap-filling error model `model`."""
     from fluxpart.uncertainty import UncertaintyInputs, period_uncertainty
 
     index = pd.date_range("2021-06-01", periods=4 * 48, freq="30min")
     n = len(index)
     measured = np.ones(n, dtype=bool)
-    measured[10:30] = measured[100:103] = False                    # 23 filled records
-    model = pd.DataFrame({"bias": [bias, bias], "bias_se": [bias_se, bias_se],
-                          "independent_variance": [0.0, 0.0], "correlated_variance": [0.0, 0.0]},
-                         index=pd.Index(["night", "day"], name="record_class"))
+    measured[10:30] = measured[100:103] = False                    # 5 night + 18 day
     zeros = np.zeros(n)
     fluxes = pd.DataFrame({name: np.ones(n) for name in (
         "nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")}, index=index)
@@ -553,7 +547,20 @@ def test_fill_bias_part_is_the_bias_itself(bias, bias_se):
         gapfill_model=model, e0_delta=zeros, night_window=np.zeros(n, dtype=int),
         night_relative_se=np.full(n, np.nan), day_window=np.zeros(n, dtype=int),
         day_relative_se=np.full(n, np.nan))
-    out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
+    return period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
+
+
+@pytest.mark.parametrize("bias, bias_se", [(0.02, 0.005), (0.005, 0.02)])
+def test_fill_bias_part_is_the_bias_itself(bias, bias_se):
+    """The fill error of N records holds their common bias Nμ; its estimate B has
+    E[B²] = (Nμ)² + S² (elementary statistics), so max(B² − S², 0) estimates (Nμ)²
+    (the positive-part estimator of a squared mean): a bias resolved by its estimate
+    counts nearly whole, one inside its own standard error not at all. S is reported."""
+
+    model = pd.DataFrame({"bias": [bias, bias], "bias_se": [bias_se, bias_se],
+                          "independent_variance": [0.0, 0.0], "correlated_variance": [0.0, 0.0]},
+                         index=pd.Index(["night", "day"], name="record_class"))
+    out = _one_period_with_fills(model)
     grams = 1800 * 12.011e-6
     assert out["nee_uncertainty_gapfill_bias"] == pytest.approx(23 * bias * grams)
     # 5 night and 18 day records: the classes' estimates are independent, so their
@@ -570,25 +577,12 @@ def test_fill_bias_se_of_a_borrowed_class_is_the_same_estimate():
     """A class without scored gaps takes the other class's bias: one estimate for every
     filled record, so its standard error scales with their count, S = N s (elementary
     statistics: the sum of N copies of one estimate)."""
-    from fluxpart.uncertainty import UncertaintyInputs, period_uncertainty
 
-    index = pd.date_range("2021-06-01", periods=4 * 48, freq="30min")
-    n = len(index)
-    measured = np.ones(n, dtype=bool)
-    measured[10:30] = measured[100:103] = False                    # 5 night + 18 day
     model = pd.DataFrame({"bias": [np.nan, 0.02], "bias_se": [np.nan, 0.005],
                           "independent_variance": [np.nan, 0.0],
                           "correlated_variance": [np.nan, 0.0]},
                          index=pd.Index(["night", "day"], name="record_class"))
-    zeros = np.zeros(n)
-    fluxes = pd.DataFrame({name: np.ones(n) for name in (
-        "nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")}, index=index)
-    inputs = UncertaintyInputs(
-        measured=measured, noise_sigma=zeros, is_night=index.hour < 6, fluxes=fluxes, runs={},
-        gapfill_model=model, e0_delta=zeros, night_window=np.zeros(n, dtype=int),
-        night_relative_se=np.full(n, np.nan), day_window=np.zeros(n, dtype=int),
-        day_relative_se=np.full(n, np.nan))
-    out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
+    out = _one_period_with_fills(model)
     grams = 1800 * 12.011e-6
     assert out["nee_uncertainty_gapfill_bias_se"] == pytest.approx(23 * 0.005 * grams)
 
