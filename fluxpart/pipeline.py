@@ -718,7 +718,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     annual = agreement.method_agreement(budgets.annual, config.agreement_margin)
     warnings.extend(agreement.disagreements(annual, config.agreement_margin))
     warnings.extend(storage_check.release_warnings(storage_check.morning_release(
-        frame.index, nee_measured, frame["ustar"].to_numpy(dtype=float), runs["central"],
+        nee_measured, frame["ustar"].to_numpy(dtype=float), runs["central"],
         is_night, day.reco - day.gpp, year_keys, interval)))
     step("budgets")
     annual = annual.assign(ustar_threshold=timeseries["ustar_threshold"].groupby(year_keys)

@@ -31,8 +31,9 @@ from __future__ import annotations
 import numpy as np
 
 from . import units
+from .uncertainty import gap_runs
 
-__all__ = ["MORNING_HOURS", "morning_release"]
+__all__ = ["MORNING_HOURS", "morning_release", "release_warnings"]
 
 #: Hours after the end of a night that count as its morning: the release of stored CO2
 #: takes the first hours of daytime mixing (common practice (m)).
@@ -50,14 +51,12 @@ MIN_Z = 3.0
 MIN_ANNUAL_EXCESS = 10.0
 
 
-def morning_release(index, nee_measured, ustar, threshold, is_night, nee_model, year_keys,
+def morning_release(nee_measured, ustar, threshold, is_night, nee_model, year_keys,
                     interval_minutes) -> list[dict]:
     """Excess NEE of the mornings after calm nights over those after turbulent nights.
 
     Parameters
     ----------
-    index : pandas.DatetimeIndex
-        Regular time axis of the records (interval starts).
     nee_measured : array_like
         Measured NEE kept by screening [µmol m-2 s-1]; NaN where missing or rejected.
     ustar : array_like
@@ -72,7 +71,7 @@ def morning_release(index, nee_measured, ustar, threshold, is_night, nee_model, 
     year_keys : array_like
         Budget year of each record.
     interval_minutes : int
-        Record length [min].
+        Record length [min]; the records lie on a regular axis.
 
     Returns
     -------
@@ -104,8 +103,8 @@ def morning_release(index, nee_measured, ustar, threshold, is_night, nee_model, 
     years = np.asarray(year_keys)
     per_morning = max(1, int(round(MORNING_HOURS * 60 / int(interval_minutes))))
     n = night.size
-    edges = np.flatnonzero(np.diff(np.r_[0, night.astype(np.int8), 0]))
-    starts, ends = edges[::2], edges[1::2]            # night runs [start, end)
+    starts, lengths = gap_runs(night)                 # night runs [start, start + length)
+    ends = starts + lengths
     rows = {}
     for start, end in zip(starts, ends, strict=True):
         if end >= n:

@@ -1,5 +1,6 @@
 """Shared fixtures: reference values with their sources, seeded random generators."""
 
+import shutil
 import tomllib
 from pathlib import Path
 
@@ -36,3 +37,12 @@ def written_demo(tmp_path_factory):
     result = fluxpart.process(frame, demo.site(), config)
     folder = result.write(tmp_path_factory.mktemp("written") / "result")
     return result, folder
+
+
+@pytest.fixture
+def copy(bundle, tmp_path):
+    """A private copy of the requesting module's `bundle` (site config, input and result
+    folder `out`), to edit or move."""
+    target = tmp_path / "bundle"
+    shutil.copytree(bundle, target)
+    return target

@@ -83,13 +83,6 @@ def bundle(tmp_path_factory):
     return root
 
 
-@pytest.fixture
-def copy(bundle, tmp_path):
-    target = tmp_path / "bundle"
-    shutil.copytree(bundle, target)
-    return target
-
-
 def test_verify_does_not_call_another_fluxpart_release_a_last_digit_matter(copy, capsys):
     """A result of another release: verify said its numbers 'may differ in their last
     digits', which a changed method (0.8.0 changed the gap filling) contradicts."""

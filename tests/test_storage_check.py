@@ -32,7 +32,7 @@ def test_a_planted_morning_release_is_found_and_sized():
     """A release of 3 µmol m-2 s-1 for 3 h after every third night (about 26 g C m-2 a year
     in those records) is flagged, and its size is read within 20 %."""
     index, nee, ustar, threshold, night, model = _site_year(release=3.0)
-    rows = storage_check.morning_release(index, nee, ustar, threshold, night, model,
+    rows = storage_check.morning_release(nee, ustar, threshold, night, model,
                                          index.year, 30)
     assert len(rows) == 1 and rows[0]["flagged"]
     assert abs(rows[0]["excess"] - 3.0) < 0.6
@@ -46,7 +46,7 @@ def test_mornings_without_a_release_are_not_flagged():
     """The same year without a release: no warning, whatever the calm nights."""
     for seed in range(5):
         index, nee, ustar, threshold, night, model = _site_year(release=0.0, seed=seed)
-        rows = storage_check.morning_release(index, nee, ustar, threshold, night, model,
+        rows = storage_check.morning_release(nee, ustar, threshold, night, model,
                                              index.year, 30)
         assert rows and not any(row["flagged"] for row in rows)
         assert storage_check.release_warnings(rows) == []
@@ -55,7 +55,7 @@ def test_mornings_without_a_release_are_not_flagged():
 def test_a_small_release_is_named_only_when_it_matters():
     """A release resolved statistically but below MIN_ANNUAL_EXCESS a year is not named."""
     index, nee, ustar, threshold, night, model = _site_year(release=0.5)
-    rows = storage_check.morning_release(index, nee, ustar, threshold, night, model,
+    rows = storage_check.morning_release(nee, ustar, threshold, night, model,
                                          index.year, 30)
     assert rows[0]["z"] > storage_check.MIN_Z
     assert rows[0]["annual_excess"] < storage_check.MIN_ANNUAL_EXCESS

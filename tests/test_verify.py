@@ -35,14 +35,6 @@ def bundle(tmp_path_factory):
     return root
 
 
-@pytest.fixture
-def copy(bundle, tmp_path):
-    """A private copy of the bundle (to edit or move)."""
-    target = tmp_path / "bundle"
-    shutil.copytree(bundle, target)
-    return target
-
-
 def _edit_manifest(folder, change, reseal=False):
     path = folder / "manifest.json"
     manifest = json.loads(path.read_text(encoding="utf-8"))
