@@ -186,6 +186,14 @@ def _check_output_folder(out: Path, site_name=None) -> None:
     from .resultdir import other_site_reason
 
     out = out.absolute()
+    here = Path.cwd().resolve()
+    if out.resolve() == here or out.resolve() in here.parents:
+        # the folder is replaced whole: the process (and the user's shell) would be left
+        # in a deleted folder, and demo's report then failed with a traceback
+        raise FluxpartError(f"--out {str(out)!r} is the current folder or holds it; a result "
+                            "folder is replaced whole, which would leave this shell in a "
+                            "deleted folder: choose a folder below the current one, or run "
+                            "from outside it")
     if out.exists() and not out.is_dir():
         raise FluxpartError(f"--out {str(out)!r} is an existing file, not a folder; choose "
                             "another --out")
@@ -312,6 +320,18 @@ class _Parser(argparse.ArgumentParser):
         self.exit(2, f"error: {self.prog}: {message} (see {self.prog} --help)\n")
 
 
+def _path(text: str) -> str:
+    """A file or folder argument; an empty one (an unset shell variable) is a usage mistake.
+
+    ``Path("")`` is the current folder: ``--out ""`` made ``demo`` write its result
+    folder over the working directory and ``report`` its page into it.
+    """
+    if not text.strip():
+        raise argparse.ArgumentTypeError("an empty path (an unset shell variable?); give a "
+                                         "file or folder")
+    return text
+
+
 def _parser() -> argparse.ArgumentParser:
     parser = _Parser(
         prog="fluxpart",
@@ -320,19 +340,19 @@ def _parser() -> argparse.ArgumentParser:
     commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
 
     demo = commands.add_parser("demo", help="run the full pipeline on the invented demo site")
-    demo.add_argument("--out", default="fluxpart-demo", help="output folder (default: %(default)s)")
+    demo.add_argument("--out", type=_path, default="fluxpart-demo", help="output folder (default: %(default)s)")
     demo.add_argument("--seed", type=int, default=0, help="seed of the demo data (default: 0)")
     demo.add_argument("--quiet", action="store_true", help="no progress output")
     demo.set_defaults(handler=_command_demo)
 
     run = commands.add_parser("run", help="process one site config (one or more years)")
-    run.add_argument("config", help="site config (TOML)")
-    run.add_argument("--out", help="output folder (default: <config name>-output beside it)")
+    run.add_argument("config", type=_path, help="site config (TOML)")
+    run.add_argument("--out", type=_path, help="output folder (default: <config name>-output beside it)")
     run.add_argument("--quiet", action="store_true", help="no progress output")
     run.set_defaults(handler=_command_run)
 
     check = commands.add_parser("check", help="validate the input only: coverage, gaps, problems")
-    check.add_argument("config", help="site config (TOML)")
+    check.add_argument("config", type=_path, help="site config (TOML)")
     check.set_defaults(handler=_command_check)
 
     verify = commands.add_parser(
@@ -340,10 +360,10 @@ def _parser() -> argparse.ArgumentParser:
         description="Check DIR against its manifest, rerun it from the recorded input and "
         "settings, and compare. Exit 0: bit-identical, or reproduced within floating-point "
         "rounding; 1: any other difference or tampering; 2: error.")
-    verify.add_argument("directory", help="result folder written by run or demo")
-    verify.add_argument("--input", action="append", help="the input file, if it is not "
+    verify.add_argument("directory", type=_path, help="result folder written by run or demo")
+    verify.add_argument("--input", type=_path, action="append", help="the input file, if it is not "
                         "where the manifest says (relative to DIR); once per file for several")
-    verify.add_argument("--config", help="the site config, likewise (default: the recorded "
+    verify.add_argument("--config", type=_path, help="the site config, likewise (default: the recorded "
                         "place, else the copy of its text in the manifest)")
     verify.add_argument("--exact", action="store_true",
                         help="demand bit identity: rounding differences exit 1")
@@ -356,13 +376,13 @@ def _parser() -> argparse.ArgumentParser:
         description="Compare two result folders: input hashes, settings, site, versions, code "
         "fingerprint, platform, and how each annual number moved. Exit 0: same; 1: they "
         "differ; 2: error.")
-    diff.add_argument("first", help="a result folder")
-    diff.add_argument("second", help="another result folder")
+    diff.add_argument("first", type=_path, help="a result folder")
+    diff.add_argument("second", type=_path, help="another result folder")
     diff.set_defaults(handler=_lazy("diff", "command_diff"))
 
     report = commands.add_parser("report", help="figures and a self-contained HTML page")
-    report.add_argument("directory", help="result folder written by run or demo")
-    report.add_argument("--out", help="where to write the page (default: DIR/report/)")
+    report.add_argument("directory", type=_path, help="result folder written by run or demo")
+    report.add_argument("--out", type=_path, help="where to write the page (default: DIR/report/)")
     report.add_argument("--quiet", action="store_true", help="no progress output")
     report.set_defaults(handler=_command_report)
 
@@ -372,20 +392,20 @@ def _parser() -> argparse.ArgumentParser:
         "SITES.toml: [batch] sites = [\"a.toml\", \"towers/*.toml\"] (paths or globs relative to "
         "it) and optionally out = \"network-output\". Inputs travel to the workers as paths, so "
         "every worker must see the same file system.")
-    batch.add_argument("sites", help="SITES.toml listing site configs (paths or globs)")
+    batch.add_argument("sites", type=_path, help="SITES.toml listing site configs (paths or globs)")
     batch.add_argument("--scheduler", help="address of an existing Dask scheduler, e.g. "
                        "tcp://scheduler-host:8786; its workers must share this file system (default: a "
                        "local cluster of processes on 127.0.0.1)")
     batch.add_argument("--workers", type=int, help="workers of the local cluster")
-    batch.add_argument("--out", help="output folder (default: from SITES.toml)")
+    batch.add_argument("--out", type=_path, help="output folder (default: from SITES.toml)")
     batch.add_argument("--force", action="store_true", help="rerun sites already up to date")
     batch.add_argument("--quiet", action="store_true", help="no progress output")
     batch.set_defaults(handler=_lazy("batch", "command_batch"))
 
     export = commands.add_parser(
         "export", help="write a result folder as CF-1.10 NetCDF (needs the netcdf extra)")
-    export.add_argument("directory", help="result folder written by run or demo")
-    export.add_argument("--netcdf", required=True, metavar="FILE",
+    export.add_argument("directory", type=_path, help="result folder written by run or demo")
+    export.add_argument("--netcdf", type=_path, required=True, metavar="FILE",
                         help="NetCDF file to write (half-hourly and daily series)")
     export.set_defaults(handler=_command_export)
     return parser

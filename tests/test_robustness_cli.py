@@ -189,3 +189,38 @@ def test_run_into_the_result_folder_of_another_site_is_refused_before_reading(tm
     assert len(err) == 1 and err[0].startswith("error: --out")
     assert "'Another tower'" in err[0] and "[site] name" in err[0]
     assert sorted(p.name for p in result.iterdir()) == ["manifest.json"]
+
+
+def test_empty_path_arguments_are_usage_mistakes(tmp_path, capsys, monkeypatch):
+    """``--out "$OUT"`` with OUT unset: ``Path("")`` is the current folder, so demo wrote its
+    result folder over the working directory (then a FileNotFoundError traceback), report
+    wrote its page into it and run fell back to its default folder without a word."""
+    import pytest
+
+    monkeypatch.chdir(tmp_path)
+    for argv in (["demo", "--out", ""], ["run", "site.toml", "--out", ""],
+                 ["report", "out", "--out", " "], ["verify", ""], ["check", ""],
+                 ["export", "out", "--netcdf", ""]):
+        with pytest.raises(SystemExit) as stop:
+            main(argv)
+        err = capsys.readouterr().err.strip().splitlines()
+        assert stop.value.code == 2, argv
+        assert len(err) == 1 and err[0].startswith("error: ") and "empty path" in err[0], err
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_out_that_is_the_current_folder_is_refused_before_computing(tmp_path, capsys,
+                                                                    monkeypatch):
+    """A result folder is replaced whole: ``--out .`` (or a parent of the working folder)
+    left the shell in a deleted folder, and demo's report step failed with a traceback."""
+    inside = tmp_path / "results" / "here"
+    inside.mkdir(parents=True)
+    monkeypatch.chdir(inside)
+    for out in (".", str(tmp_path / "results")):
+        status = main(["demo", "--out", out, "--quiet"])
+        err = capsys.readouterr().err.strip().splitlines()
+        assert status == 2
+        assert len(err) == 1 and err[0].startswith("error: --out")
+        assert "current folder" in err[0]
+    assert list(inside.iterdir()) == []
+    assert [p.name for p in (tmp_path / "results").iterdir()] == ["here"]
