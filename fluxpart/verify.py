@@ -173,7 +173,9 @@ class VerifyReport:
     directory : pathlib.Path
         The result folder checked.
     source : str
-        ``"run"`` (recorded input file) or ``"demo"`` (regenerated demo record).
+        ``"run"`` (recorded input file), ``"demo"`` (regenerated demo record) or
+        ``"none"`` (nothing recomputed: the folder fails its manifest and there is no
+        input to rerun from).
     tables : tuple of str
         Tables compared.
     differences : tuple of Difference
@@ -255,6 +257,9 @@ class VerifyReport:
                 lines = [f"NOT bit-identical (--exact): {len(self.rounding)} column(s) of "
                          f"{self.directory} differ within floating-point rounding (largest "
                          f"relative difference {self.largest_relative_difference:.3g})"]
+            elif self.source == "none":
+                lines = [f"NOT reproduced: {len(failures)} difference(s) between "
+                         f"{self.directory} and its manifest (nothing recomputed):"]
             else:
                 lines = [f"NOT reproduced: {len(failures)} difference(s) between "
                          f"{self.directory} and its recomputation:"]
@@ -734,8 +739,20 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     notes, rounding = [], []
     with tempfile.TemporaryDirectory(prefix="fluxpart-verify-") as scratch:
         scratch = Path(scratch)
-        source, result, input_differences = _recompute(directory, manifest, input_path,
-                                                       config_path, scratch, notes)
+        try:
+            source, result, input_differences = _recompute(directory, manifest, input_path,
+                                                           config_path, scratch, notes)
+        except InputFileError as error:
+            if not differences:
+                raise
+            # the folder fails its own manifest (seal, a table's SHA-256, a file missing
+            # or extra): that verdict needs no input, so a result folder handed on without
+            # its input is still found tampered (exit 1), not only asked for --input
+            return VerifyReport(directory=directory, source="none",
+                                tables=tuple(sorted(stored_tables)),
+                                differences=tuple(differences),
+                                environment=tuple(environment), code_changed=code_changed,
+                                exact=exact, notes=(*notes, f"not recomputed: {error}"))
         if result is None:
             return VerifyReport(directory=directory, source=source,
                                 tables=tuple(sorted(stored_tables)),

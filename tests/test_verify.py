@@ -187,6 +187,22 @@ def test_extra_and_missing_files_are_named(copy, capsys):
     assert "does not match its manifest: audit.parquet" in err and "1 more problem" in err
 
 
+def test_tampered_result_moved_alone_is_found_tampered_without_its_input(bundle, tmp_path,
+                                                                        capsys):
+    """A result folder handed on without its input, one table edited after writing: the
+    folder's own check needs no input, so verify says NOT reproduced (exit 1) naming the
+    table and that nothing was recomputed; it stopped at 'give --input' (exit 2)."""
+    alone = tmp_path / "received" / "out"
+    shutil.copytree(bundle / "out", alone)
+    _set_value(alone, "annual", "nee", lambda v: v + 1.0, reseal=False)
+    assert main(["verify", str(alone)]) == 1
+    out = capsys.readouterr().out
+    assert out.startswith("NOT reproduced: 1 difference(s)") and "its manifest" in out
+    assert "annual: file SHA-256" in out and "not recomputed" in out and "--input" in out
+    (alone / "annual.parquet").unlink()                    # a missing table likewise
+    assert main(["verify", str(alone), "--quiet"]) == 1
+
+
 def test_altered_parquet_value_is_located(copy, capsys):
     """A hand-altered value: a hash mismatch and its table, column, row and both values."""
     original = float(read_table(copy / "out" / "annual.parquet")["nee"].iloc[0])
