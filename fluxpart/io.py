@@ -1363,7 +1363,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     source = str(path)
     stamp_text = join_time_columns(raw, time_columns)
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
-                          lines=lines, utc_offset=utc_offset, time_zone=time_zone)
+                          lines=lines, utc_offset=utc_offset, time_zone=time_zone,
+                          rows_after_header=rows_after_header)
     values, missing_cells, nonfinite = {}, {}, {}
     read = dict(mapping) | {_flag_key(column): column for column in flag_columns}
     for name, column in read.items():

@@ -353,7 +353,7 @@ def _numeric_clock(text: pd.Series) -> str:
 
 def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, source: str,
                  lines: np.ndarray, utc_offset: float | None = None,
-                 time_zone: str | None = None) -> ParsedStamps:
+                 time_zone: str | None = None, rows_after_header: int = 0) -> ParsedStamps:
     """Parse one file's stamp text into tz-naive local standard time.
 
     Parameters
@@ -374,6 +374,9 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     time_zone : str, optional
         IANA zone (``"Area/City"``) whose civil time, with daylight saving, the
         stamps are written in.
+    rows_after_header : int, optional
+        Lines already skipped between header and data (for the hint when the
+        first rows are further units or processing lines).
 
     Returns
     -------
@@ -435,8 +438,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = ("; the header line repeats there (files joined end to end?): remove the "
                     "repeated header lines, or list the files in [input] path instead")
         elif first == 0 and not any(ch.isdigit() for ch in text.iloc[0][:4]):
-            hint = ("; if the file has a units line under the header, set [input] "
-                    "rows_after_header = 1")
+            # the first rows without a stamp: units or processing lines (a logger writes
+            # up to three under its header); the count to skip is all of them
+            lead = int(np.argmin(failed)) if not failed.all() else len(failed)
+            skip = rows_after_header + (lead if lead <= 4 else 1)
+            hint = (f"; if the file has {'a units line' if skip == 1 else f'{skip} lines'} "
+                    f"{'' if skip == 1 else '(units, processing) '}under the header, set "
+                    f"[input] rows_after_header = {skip}")
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
         elif _numeric_clock(text):

@@ -205,3 +205,17 @@ def test_literal_z_in_the_format_is_utc():
     # the same file with time_zone = "UTC" (the other documented way) reads the same
     assert list(parse_stamps(text, "%Y-%m-%dT%H:%M:%SZ", **options, time_zone="UTC").stamps) \
         == list(stamps.stamps)
+
+
+@pytest.mark.parametrize(("before", "lines", "wanted"), [(0, ["TS", ""], 2), (1, [""], 2),
+                                                         (0, ["degC"], 1)])
+def test_units_and_processing_lines_hint_counts_them_all(before, lines, wanted):
+    """A logger header with a units and a processing line: the hint names the number of
+    lines to skip, counting those already skipped (it said rows_after_header = 1 even
+    when that was set, or when two lines stood under the header)."""
+    truth = [f"2021-06-01 {h:02d}:{m:02d}:00" for h in range(3) for m in (0, 30)]
+    with pytest.raises(TimestampError, match=rf"rows_after_header = {wanted}$"):
+        parse_stamps(pd.Series(lines + truth), "%Y-%m-%d %H:%M:%S",
+                     time_columns=("TIMESTAMP",), source="t.dat",
+                     lines=np.arange(2, len(lines) + len(truth) + 2),
+                     rows_after_header=before)
