@@ -1167,6 +1167,19 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
             "\"utf-16\") to the encoding it was written in") from None
     if text.startswith("\ufeff"):
         text = text[1:]
+    nul = text.find("\x00")
+    if nul >= 0 and text.count("\x00") >= len(text) / 4:
+        raise InputFileError(f"input file {str(path)!r} is read as {encoding} but every other "
+                             "byte is zero, as in UTF-16 text: set [input] encoding = "
+                             "\"utf-16\" (or leave encoding out to detect it)")
+    if nul >= 0:
+        # a power cut or a damaged memory card leaves a block of zero bytes where the
+        # logger was writing; shown as a stamp or cell they filled the message with \x00
+        raise InputFileError(
+            f"input file {str(path)!r}: line {text.count(chr(10), 0, nul) + 1} holds zero "
+            f"bytes (NUL; {text.count(chr(0))} in the file), which no text table has: a write "
+            "cut short by a power failure or a damaged memory card leaves them; delete them, "
+            "and the record they damaged, in a copy of the file")
     return text, ("utf-8" if encoding == "utf-8-sig" else encoding)
 
 

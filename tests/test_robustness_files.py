@@ -284,3 +284,27 @@ def test_thousands_separator_beside_decimal_point_is_named(example, tmp_path, ca
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "'solar_down' (rg)" in line and "thousands separator" in line
+
+
+def test_zero_bytes_of_a_cut_write_are_named_in_one_short_line(example, tmp_path, capsys):
+    """A block of NUL bytes (a logger's write cut by a power failure) before a record: one
+    line naming the file line, not the stamp repr with 200 '\\x00' escapes (~1 kB)."""
+    lines = example.with_suffix(".csv").read_text().splitlines(keepends=True)
+    data = "".join(lines[:500]) + "\x00" * 200 + "".join(lines[500:])
+    config = _with_records(example, tmp_path, "cut.csv", data)
+    assert main(["check", str(config)]) == 2
+    error = _one_error(capsys)
+    assert "line 501 holds zero bytes" in error and "200 in the file" in error
+    assert "\\x00" not in error and len(error) < 400
+
+
+def test_utf16_read_as_latin1_names_the_encoding(example, tmp_path, capsys):
+    """[input] encoding = "latin-1" on a UTF-16 file: every other byte is zero; the line
+    names UTF-16 instead of the zero bytes of a cut write."""
+    text = example.with_suffix(".csv").read_text()
+    (tmp_path / "wide.csv").write_bytes(text.encode("utf-16-le"))
+    config = tmp_path / "wide.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', 'path = "wide.csv"\nencoding = "latin-1"'))
+    assert main(["check", str(config)]) == 2
+    assert 'encoding = "utf-16"' in _one_error(capsys)
