@@ -557,7 +557,8 @@ def _one_block(inside: set, outside: set) -> bool:
 
 
 def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: str | None,
-         shift_applied: float, longitude: float) -> tuple[str, float | None]:
+         shift_applied: float, longitude: float, latitude: float | None = None
+         ) -> tuple[str, float | None]:
     """What setting removes a shift of `shift` minutes, in words, and the utc_offset."""
     hours = shift / 60.0
     # the sun crosses the meridian 4 min later per degree west (Earth turns 360° per day);
@@ -588,6 +589,12 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
         fixes.append("the stamp convention (interval start, middle or end: [input] time_marks)")
     if len(fixes) > 1 and not whole_hours:
         fixes = fixes[1:] + fixes[:1]                        # a stamp convention first
+    # latitude and longitude swapped: the sun is timed at the latitude's value taken as
+    # a longitude, 4 min per degree from the true one
+    if (latitude is not None and abs(longitude) <= 90.0 and abs(longitude - latitude) >= 2.5
+            and abs(4.0 * (longitude - latitude) - shift) <= 10.0):
+        fixes.insert(0, f"[site] latitude = {longitude:g} and longitude = {latitude:g} (the "
+                        "configured values look swapped)")
     if not fixes:
         fixes.append(f"the logger clock, or [site] utc_offset (about {offset:g} h) or "
                      "[site] longitude")
@@ -669,7 +676,7 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
                 f"convert the stamps to local standard time")
         if abs(base) >= threshold:
             fix, suggested = _fix(base, utc_offset, interval, time_marks, shift_applied_minutes,
-                                  longitude)
+                                  longitude, latitude)
             text += f"; outside daylight saving Rg is {base:+.0f} min off: set {fix}"
         problems.append(text)
         median = base
@@ -686,7 +693,7 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
                 and spread <= tolerance and edge_spread <= tolerance):
             status = "shifted"
             fix, suggested = _fix(median, utc_offset, interval, time_marks,
-                                  shift_applied_minutes, longitude)
+                                  shift_applied_minutes, longitude, latitude)
             direction = "later" if median > 0 else "earlier"
             problems.append(
                 f"clock: measured Rg comes {abs(median):.0f} min {direction} than the sun at "

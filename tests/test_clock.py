@@ -112,6 +112,20 @@ def test_longitude_of_the_wrong_sign_is_named():
     assert "[site] longitude = 10.2" in verdict.problems[0]
 
 
+def test_latitude_and_longitude_swapped_are_named():
+    """A site at 49.3° N, 10.2° E configured as latitude 10.2, longitude 49.3: the sun is
+    timed 39.1° too far east, 4 min per degree (360° in 24 h), so Rg comes 156 min late;
+    the first fix named is the swap (it named utc_offset = 3.5 only). A plain offset error
+    at the same site does not name a swap."""
+    rg = synthetic_rg(49.3, 10.2, 1.0, interval_minutes=30, seed=6)
+    verdict = _check(rg, 10.2, 49.3, 1.0, 30)
+    assert verdict.status == "shifted"
+    assert abs(verdict.shift_minutes - 4 * (49.3 - 10.2)) < 8.0
+    assert "likely fix: [site] latitude = 49.3 and longitude = 10.2" in verdict.problems[0]
+    offset = _check(rg, 49.3, 10.2, 0.0, 30)
+    assert offset.status == "shifted" and "swapped" not in offset.problems[0]
+
+
 @pytest.mark.parametrize("latitude, longitude, utc_offset, months, interval", [
     (50.0, 8.0, 1.0, (4, 11), 30),       # northern daylight saving, April to October
     (-35.3, 149.1, 10.0, (10, 4), 60),   # southern, October to March
