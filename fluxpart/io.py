@@ -924,6 +924,13 @@ def _resolve_paths(value, folder: Path) -> tuple:
         if not isinstance(item, str) or not item.strip():
             raise ConfigError(f"[input] path = {setting_text(value)}: expected a file path (a string, "
                               "relative to the site config), a list of them or a glob")
+        if item.startswith("~") and not (folder / item).exists() and not glob.glob(
+                str(folder / item)):
+            # no shell reads the config: '~' would name a folder beside it, and a home
+            # folder differs from user to user, so the same config would read other files
+            raise ConfigError(f"[input] path = {setting_text(item)}: '~' is not expanded to a "
+                              "home folder in a site config; write the path relative to the "
+                              f"site config or in full (e.g. {str(Path(item).expanduser())!r})")
         if _GLOB_CHARACTERS & set(item):
             pattern = item if Path(item).is_absolute() else str(folder / item)
             matches = sorted(Path(p) for p in glob.glob(pattern) if Path(p).is_file())

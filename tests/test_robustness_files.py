@@ -308,3 +308,16 @@ def test_utf16_read_as_latin1_names_the_encoding(example, tmp_path, capsys):
         'path = "quillmoor_grassland.csv"', 'path = "wide.csv"\nencoding = "latin-1"'))
     assert main(["check", str(config)]) == 2
     assert 'encoding = "utf-16"' in _one_error(capsys)
+
+
+def test_home_folder_tilde_in_the_input_path_is_named(example, tmp_path, capsys):
+    """[input] path = "~/tower.csv": no shell reads the config, so '~' named a folder beside
+    it and the error showed '<config folder>/~/tower.csv does not exist'."""
+    config = tmp_path / "tilde.toml"
+    for path in ("~/tower.csv", "~/logger/*.dat"):
+        config.write_text(example.read_text(encoding="utf-8").replace(
+            'path = "quillmoor_grassland.csv"', f'path = "{path}"'), encoding="utf-8")
+        assert main(["check", str(config)]) == 2
+        error = _one_error(capsys)
+        assert f'[input] path = "{path}"' in error and "'~' is not expanded" in error
+        assert str(Path(path).expanduser()) in error
