@@ -595,6 +595,10 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
             and abs(4.0 * (longitude - latitude) - shift) <= 10.0):
         fixes.insert(0, f"[site] latitude = {longitude:g} and longitude = {latitude:g} (the "
                         "configured values look swapped)")
+    if latitude == 0.0 and longitude == 0.0:
+        # 0, 0 lies in the open Atlantic: a placeholder left in the site config
+        fixes.insert(0, "[site] latitude and longitude (0, 0 is a placeholder, in the open "
+                        "ocean: give the tower's coordinates)")
     if not fixes:
         fixes.append(f"the logger clock, or [site] utc_offset (about {offset:g} h) or "
                      "[site] longitude")

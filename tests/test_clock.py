@@ -126,6 +126,17 @@ def test_latitude_and_longitude_swapped_are_named():
     assert offset.status == "shifted" and "swapped" not in offset.problems[0]
 
 
+def test_placeholder_coordinates_are_named_first():
+    """[site] latitude = 0, longitude = 0 left in a config for a site at 10.2° E: Rg comes
+    41 min early (4 min per degree); the fix names the coordinates before a utc_offset of
+    0.25 h, which alone would have made the clock look right."""
+    rg = synthetic_rg(49.3, 10.2, 1.0, interval_minutes=30, seed=7)
+    verdict = _check(rg, 0.0, 0.0, 1.0, 30)
+    assert verdict.status == "shifted"
+    assert "likely fix: [site] latitude and longitude (0, 0 is a placeholder" in \
+        verdict.problems[0]
+
+
 @pytest.mark.parametrize("latitude, longitude, utc_offset, months, interval", [
     (50.0, 8.0, 1.0, (4, 11), 30),       # northern daylight saving, April to October
     (-35.3, 149.1, 10.0, (10, 4), 60),   # southern, October to March
