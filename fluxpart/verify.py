@@ -367,7 +367,8 @@ def compare_tables(name: str, stored: pd.DataFrame, recomputed: pd.DataFrame) ->
             kind = "value" if beyond.any() else "rounding"
             shown = beyond if beyond.any() else differs
             position = (int(np.flatnonzero(beyond)[0]) if beyond.any()
-                        else int(np.argmax(np.where(differs, relative, -1.0))))
+                        else int(np.argmax(np.where(differs, relative, -1.0)))
+                        if differs.any() else 0)        # an empty table has no position
             largest = float(np.max(relative[differs])) if differs.any() else float("nan")
         else:
             differs = _unequal(left, right)

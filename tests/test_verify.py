@@ -11,6 +11,7 @@ import shutil
 from pathlib import Path
 
 import numpy as np
+import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 import pytest
@@ -23,7 +24,7 @@ from fluxpart.errors import InputFileError
 from fluxpart.manifest import manifest_seal
 from fluxpart.pipeline import process, process_site_config
 from fluxpart.store import file_sha256, read_table
-from fluxpart.verify import ROUNDING_TOLERANCE, verify
+from fluxpart.verify import ROUNDING_TOLERANCE, compare_tables, verify
 
 
 @pytest.fixture(scope="module")
@@ -201,6 +202,17 @@ def test_tampered_result_moved_alone_is_found_tampered_without_its_input(bundle,
     assert "annual: file SHA-256" in out and "not recomputed" in out and "--input" in out
     (alone / "annual.parquet").unlink()                    # a missing table likewise
     assert main(["verify", str(alone), "--quiet"]) == 1
+
+
+def test_empty_tables_compare_equal():
+    """A table without rows (the u* bootstrap draws of ustar_bootstrap_draws = 0) equals
+    its empty recomputation; verify stopped with a ValueError traceback (argmax of an
+    empty float column) on such a result."""
+    empty = pd.DataFrame({"draw": np.array([], dtype=np.int64),
+                          "threshold": np.array([], dtype=np.float64)})
+    assert compare_tables("parameters_ustar_bootstrap", empty, empty.copy()) == []
+    grown = pd.DataFrame({"draw": [0], "threshold": [0.2]})
+    assert [d.kind for d in compare_tables("t", empty, grown)] == ["rows"]
 
 
 def test_altered_parquet_value_is_located(copy, capsys):
