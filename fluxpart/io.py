@@ -813,6 +813,18 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     for name in REQUIRED:
         if name in converted and not np.isfinite(converted[name]).any():
             raise MissingColumnError(_empty_required_message(name, mapping, derived))
+    if flag_columns and "nee" in converted:
+        measured = np.isfinite(converted["nee"])
+        if measured.any() and not (measured & (converted["nee_flag"] != 1.0)).any():
+            # no NEE record left: every stage would fail, and run named only the partitioning
+            flag_values = np.unique(np.concatenate(
+                [f[np.isfinite(f)] for f in (combined["values"][_flag_key(c)]
+                                             for c in flag_columns)]))[:10]
+            raise ImplausibleValueError(
+                f"nee_flag: every record with a value in {source_of['nee']!r} is rejected by "
+                f"{' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)}; "
+                f"the flags hold {[f'{v:g}' for v in flag_values]}: set [input] flag_accept to "
+                "the values that mean a good record (or remove nee_flag from [input.columns])")
 
     order = [name for name in VARIABLES if name in converted]
     frame = pd.DataFrame({name: converted[name].astype(np.float64) for name in order},

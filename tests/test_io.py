@@ -1407,6 +1407,24 @@ def test_flag_rejecting_most_records_warns(tmp_path):
                for w in report.warnings)
 
 
+def test_flag_rejecting_every_nee_record_is_an_error_naming_flag_accept(tmp_path):
+    """Every measured NEE record rejected by the site flag (flags 1 and 2, flag_accept = [0]):
+    the reader names the flag and flag_accept; run stopped at the partitioning stages,
+    naming only missing night records. A flag missing where NEE is measured keeps that
+    record (no judgement by the site), so the file is read."""
+    records = _records()
+    records["qc"] = 1 + np.arange(96) % 2
+    path = _write(tmp_path / "t.csv", records)
+    with pytest.raises(ImplausibleValueError, match=r"^nee_flag: every record with a value in "
+                                                     r"'co2_flux' is rejected by qc with \[input\] "
+                                                     r"flag_accept = \[0\]; the flags hold \['1', '2'\]"):
+        _read(path, columns=MAPPING | {"nee_flag": "qc"})
+    records["qc"] = records["qc"].astype(float)
+    records.iloc[5, records.columns.get_loc("qc")] = np.nan
+    frame, _ = _read(_write(tmp_path / "u.csv", records), columns=MAPPING | {"nee_flag": "qc"})
+    assert np.isnan(frame["nee_flag"].iloc[5])
+
+
 def test_constant_nee_is_not_taken_for_a_unit_mixup(tmp_path):
     """A constant NEE column (a logger stuck at one value) says nothing about its unit:
     the reader raises no mg CO2 suspicion and leaves the finding to the preflight."""
