@@ -351,6 +351,24 @@ def _numeric_clock(text: pd.Series) -> str:
     return ""
 
 
+def _other_format(stamp: str, time_format: str) -> str:
+    """A hint where a stamp fails only for a 12-hour clock or a two-digit year, else ''."""
+    def parses(candidate):
+        try:
+            datetime.strptime(stamp.strip(), candidate)
+        except ValueError:
+            return False
+        return True
+    if "%p" not in time_format and re.search(r"(?i)\b[AP]\.?M\.?$", stamp.strip()):
+        wanted = time_format.replace("%H", "%I") + " %p"
+        return ("the stamps carry AM/PM (a 12-hour clock): write the hour as %I and add %p"
+                + (f", time_format = {setting_text(wanted)}" if parses(wanted) else ""))
+    if "%Y" in time_format and parses(time_format.replace("%Y", "%y")):
+        return ("the year has two digits: write it as %y, time_format = "
+                f"{setting_text(time_format.replace('%Y', '%y'))}")
+    return ""
+
+
 def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, source: str,
                  lines: np.ndarray, utc_offset: float | None = None,
                  time_zone: str | None = None, rows_after_header: int = 0) -> ParsedStamps:
@@ -449,6 +467,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
         elif _numeric_clock(text):
             hint = "; " + _numeric_clock(text)
+        elif _other_format(text.iloc[first], time_format):
+            hint = "; " + _other_format(text.iloc[first], time_format)
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")

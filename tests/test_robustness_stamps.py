@@ -4,6 +4,7 @@ Outside fact: the calendar and clock of Python's ``datetime`` (a record ending a
 00:30 on day-of-year 2 of 2021 is 2021-01-02 00:30).
 """
 
+import re
 from datetime import datetime, timedelta
 
 import numpy as np
@@ -219,3 +220,21 @@ def test_units_and_processing_lines_hint_counts_them_all(before, lines, wanted):
                      time_columns=("TIMESTAMP",), source="t.dat",
                      lines=np.arange(2, len(lines) + len(truth) + 2),
                      rows_after_header=before)
+
+
+@pytest.mark.parametrize(("stamps", "time_format", "said"), [
+    (["1/1/2021 12:30 AM", "1/1/2021 1:00 AM"], "%m/%d/%Y %H:%M",
+     'AM/PM (a 12-hour clock): write the hour as %I and add %p, time_format = '
+     '"%m/%d/%Y %I:%M %p"'),
+    (["01.01.21 00:30", "01.01.21 01:00"], "%d.%m.%Y %H:%M",
+     'the year has two digits: write it as %y, time_format = "%d.%m.%y %H:%M"'),
+])
+def test_twelve_hour_clock_and_two_digit_year_are_named(stamps, time_format, said):
+    """A spreadsheet's 12-hour clock or two-digit year under a 24-hour, four-digit format:
+    the error names the strptime codes that read them (Python datetime.strptime: %I, %p,
+    %y); it named only the format."""
+    with pytest.raises(TimestampError, match=re.escape(said)):
+        _parse(stamps, time_format, columns=("TIMESTAMP",))
+    fixed = said.split("time_format = ")[1].strip('"')
+    assert list(_parse(stamps, fixed, columns=("TIMESTAMP",))) == [
+        pd.Timestamp(2021, 1, 1, 0, 30), pd.Timestamp(2021, 1, 1, 1, 0)]
