@@ -72,6 +72,7 @@ __all__ = [
     "read_sites_file",
     "run_batch",
     "run_site",
+    "same_input_sites",
 ]
 
 #: Folder of the network's annual dataset inside the batch output folder.
@@ -191,12 +192,15 @@ class BatchReport:
     failures : pandas.DataFrame
         As written to ``out/failures.parquet``: ``site``, ``config``, ``error``,
         ``message``, ``kind``.
+    warnings : tuple of str
+        Sites whose results come from the same input files (:func:`same_input_sites`).
     """
 
     out: Path
     outcomes: tuple
     network: pd.DataFrame = field(repr=False)
     failures: pd.DataFrame = field(repr=False)
+    warnings: tuple = ()
 
     def _count(self, status: str) -> int:
         return sum(outcome.status == status for outcome in self.outcomes)
@@ -774,7 +778,41 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
             cluster.close()
     failures = _write_failures(outcomes, out)
     table = _write_network(outcomes, out)
-    return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures)
+    return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures,
+                       warnings=tuple(same_input_sites(outcomes)))
+
+
+def _input_hashes(directory: Path) -> tuple:
+    """SHA-256 of the input file(s) a result folder records, in order (empty if none)."""
+    recorded = read_manifest(directory).get("provenance", {}).get("input")
+    if not isinstance(recorded, dict):
+        return ()
+    parts = recorded.get("files") if isinstance(recorded.get("files"), list) else [recorded]
+    return tuple(str(part.get("sha256")) for part in parts if isinstance(part, dict))
+
+
+def same_input_sites(outcomes) -> list[str]:
+    """One warning per group of sites whose results were computed from the same input.
+
+    A site config copied for a new tower with its ``[input] path`` left unchanged gives
+    a second result of the first tower's records under the new name and place: the
+    network tables then count that tower twice. Sites are compared by the SHA-256 of
+    their input files as recorded in their manifests (written and up-to-date sites).
+    """
+    groups: dict[tuple, list[str]] = {}
+    for outcome in outcomes:
+        if outcome.status == "failed":
+            continue
+        try:
+            hashes = _input_hashes(Path(outcome.directory))
+        except (FluxpartError, OSError, ValueError):
+            continue
+        if hashes:
+            groups.setdefault(hashes, []).append(outcome.key)
+    return [f"sites {', '.join(repr(k) for k in keys)} were computed from the same input "
+            f"file(s) (SHA-256 {hashes[0][:12]}...): the network tables count those records "
+            f"{len(keys)} times; check [input] path in their site configs"
+            for hashes, keys in groups.items() if len(keys) > 1]
 
 
 def _check_out(out: Path) -> None:
@@ -873,6 +911,7 @@ def _summary(report: BatchReport) -> str:
                       index=False, float_format=lambda v: f"{v:9.1f}",
                       # u* thresholds in m s-1 need their three decimals (0.177, not 0.2)
                       formatters={"ustar_threshold": lambda v: f"{v:9.3f}"})]
+    lines += [f"warning: {warning}" for warning in report.warnings]
     datasets = ", ".join(f"{folder}/" for folder in NETWORK_DATASETS.values())
     lines += ["", f"Wrote {report.out}/ (one result folder per site, {datasets} "
               f"{FAILURES_FILE})", f"Caution: {CAUTION}"]

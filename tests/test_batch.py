@@ -467,3 +467,27 @@ def test_local_workers_fork_from_a_server_on_linux_only():
     assert _start_method("darwin", ("spawn", "fork", "forkserver")) == "spawn"
     assert _start_method("win32", ("spawn",)) == "spawn"
     assert _start_method() in __import__("multiprocessing").get_all_start_methods()
+
+
+def test_sites_computed_from_the_same_input_are_warned_about(tmp_path):
+    """A site config copied for a new tower with [input] path left unchanged: two results
+    of one tower's records, counted twice in the network tables without a word. Sites are
+    matched by the SHA-256 their manifests record (one file, or the list of several)."""
+    def folder(key, hashes):
+        directory = tmp_path / key
+        directory.mkdir()
+        recorded = ({"path": "a.csv", "sha256": hashes[0]} if len(hashes) == 1 else
+                    {"files": [{"path": f"{h}.csv", "sha256": h} for h in hashes]})
+        (directory / "manifest.json").write_text(json.dumps({"provenance": {"input": recorded}}))
+        return batch.SiteOutcome(key=key, config=f"{key}.toml", directory=str(directory),
+                                 status="written")
+
+    outcomes = [folder("fen", ["aa"]), folder("fen_copy", ["aa"]), folder("bog", ["bb"]),
+                folder("two_years", ["aa", "bb"]),
+                batch.SiteOutcome(key="broken", config="broken.toml",
+                                  directory=str(tmp_path / "none"), status="failed")]
+    warnings = batch.same_input_sites(outcomes)
+    assert len(warnings) == 1
+    assert warnings[0].startswith("sites 'fen', 'fen_copy' were computed from the same input")
+    assert "2 times" in warnings[0] and "[input] path" in warnings[0]
+    assert batch.same_input_sites(outcomes[2:]) == []
