@@ -353,6 +353,9 @@ _BUDGET_PATTERNS = [
     (rf"({_FLUX_PATTERN})_ustar_(p[\d.]+)",
      lambda m: (CARBON, f"{m[1]} summed ({_CARBON_SUM}) with the u* threshold at bootstrap "
                 f"percentile {m[2][1:]}")),
+    (rf"({_FLUX_PATTERN})_ustar_seasonal",
+     lambda m: (CARBON, f"{m[1]} summed ({_CARBON_SUM}) with each season at its own u* "
+                "threshold (run only where the seasons' thresholds clearly differ)")),
     (rf"({_FLUX_PATTERN})_ustar_spread",
      lambda m: (CARBON, f"{m[1]} ({_CARBON_SUM}): max - min over the u* threshold scenarios")),
     (rf"({_FLUX_PATTERN})_ci95_(low|high)",

@@ -1327,16 +1327,28 @@ def ustar_sigma(sums: pd.DataFrame, percentiles) -> pd.Series:
         16/50/84 percentiles this is half the 16–84 range, a standard deviation
         if the sum is normal in the threshold's distribution; for 5/50/95 it is
         the 5–95 range over 3.29. The range over all runs is used because the
-        sum need not be monotonic in the threshold. NaN without scenarios.
+        sum need not be monotonic in the threshold. NaN without scenarios. With
+        a column ``ustar_seasonal`` (each season at its own threshold, run where
+        the seasons' thresholds clearly differ, :mod:`fluxpart.ustar_seasonal`)
+        its difference from ``central`` is added in quadrature: it estimates the
+        error of applying one threshold to the whole year, a systematic part the
+        bootstrap of the year's threshold does not see (counted at its full size,
+        as the fill bias is).
     """
     z = {"central": 0.0}
     z.update({f"ustar_p{p:02d}": NormalDist().inv_cdf(p / 100.0) for p in percentiles})
     runs = [c for c in sums.columns if c in z]
     spans = [z[c] for c in runs]
     if len(runs) < 2 or max(spans) - min(spans) <= 0:
-        return pd.Series(np.nan, index=sums.index)
-    table = sums[runs]
-    return (table.max(axis=1) - table.min(axis=1)) / (max(spans) - min(spans))
+        sigma = pd.Series(np.nan, index=sums.index)
+    else:
+        table = sums[runs]
+        sigma = (table.max(axis=1) - table.min(axis=1)) / (max(spans) - min(spans))
+    if "ustar_seasonal" in sums.columns and "central" in sums.columns:
+        shift = (sums["ustar_seasonal"] - sums["central"]).abs()
+        sigma = np.sqrt(sigma.fillna(0.0) ** 2 + shift**2).where(
+            sigma.notna() | shift.notna())
+    return sigma
 
 
 @dataclass(frozen=True)

@@ -1,0 +1,105 @@
+"""Seasons whose u* threshold clearly differs from the year's (fluxpart.ustar_seasonal).
+
+Thresholds per season are those of Papale et al. (2006) (m); the rule for "clearly
+differs" (non-overlapping bootstrap 5–95 % ranges and more than 20 % above the
+year's threshold) is ours. The known-truth test uses the invented demo site.
+"""
+
+from statistics import NormalDist
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import fluxpart
+from fluxpart import demo, ustar_seasonal
+from fluxpart.uncertainty import ustar_sigma
+from fluxpart.units import flux_to_carbon
+
+
+def _table(year_threshold, seasons):
+    """A u* table: the year's row and one row per season (threshold, p05, p95)."""
+    rows = [{"year": 2021, "period": "year", "threshold": year_threshold,
+             "threshold_p05": year_threshold * 0.9, "threshold_p95": year_threshold * 1.1}]
+    rows += [{"year": 2021, "period": name, "threshold": t, "threshold_p05": lo,
+              "threshold_p95": hi} for name, (t, lo, hi) in seasons.items()]
+    return pd.DataFrame(rows)
+
+
+def test_separated_season_well_above_the_year_is_found():
+    table = _table(0.24, {"winter": (0.20, 0.19, 0.21), "summer": (0.37, 0.35, 0.39),
+                          "spring": (0.23, 0.20, 0.26)})
+    found = ustar_seasonal.seasonal_contrast(table)
+    assert found[["year", "season", "lowest_season"]].values.tolist() == [[2021, "summer",
+                                                                            "winter"]]
+    assert found["season_threshold"].iloc[0] == pytest.approx(0.37)
+    assert found["year_threshold"].iloc[0] == pytest.approx(0.24)
+
+
+@pytest.mark.parametrize("summer", [
+    (0.37, 0.20, 0.45),     # its 5-95 % range reaches the winter range: not resolved
+    (0.28, 0.25, 0.31),     # resolved, but within 20 % of the year's threshold
+])
+def test_overlapping_or_small_differences_are_not_flagged(summer):
+    table = _table(0.24, {"winter": (0.20, 0.19, 0.215), "summer": summer})
+    assert ustar_seasonal.seasonal_contrast(table).empty
+
+
+def test_table_without_bootstrap_percentiles_gives_nothing():
+    table = _table(0.24, {"winter": (0.20, 0.19, 0.21), "summer": (0.37, 0.35, 0.39)})
+    assert ustar_seasonal.seasonal_contrast(table.drop(columns="threshold_p05")).empty
+
+
+@pytest.mark.parametrize("latitude, january_season", [(50.0, "winter"), (-35.0, "summer")])
+def test_seasonal_thresholds_follow_the_hemisphere(latitude, january_season):
+    # meteorological seasons, shifted by six months in the south (common practice)
+    index = pd.date_range("2021-01-01", periods=365 * 48, freq="30min")
+    table = _table(0.24, {"winter": (0.20, 0.19, 0.21), "summer": (0.37, 0.35, 0.39),
+                          "spring": (np.nan, np.nan, np.nan)})
+    central = np.full(len(index), 0.24)
+    values = ustar_seasonal.seasonal_thresholds(index, latitude, table, central, [2021])
+    expected_january = {"winter": 0.20, "summer": 0.37}[january_season]
+    assert values[index.month == 1] == pytest.approx(expected_january)
+    # a season without its own threshold keeps the year's
+    undetected = "MAM" if latitude >= 0 else "SON"
+    months = {"MAM": [3, 4, 5], "SON": [9, 10, 11]}[undetected]
+    assert values[index.month.isin(months)] == pytest.approx(0.24)
+    # years not named keep the central threshold
+    assert ustar_seasonal.seasonal_thresholds(index, latitude, table, central, []) \
+        == pytest.approx(central)
+
+
+def test_ustar_sigma_adds_the_seasonal_shift_in_quadrature():
+    sums = pd.DataFrame({"central": [-250.0], "ustar_p16": [-256.0], "ustar_p84": [-248.0],
+                         "ustar_seasonal": [-238.0]})
+    # (max - min) over the z span of the 16th and 84th percentiles (standard normal)
+    bootstrap = 8.0 / (2.0 * NormalDist().inv_cdf(0.84))
+    expected = np.hypot(bootstrap, 12.0)
+    assert ustar_sigma(sums, (16, 84)).iloc[0] == pytest.approx(expected, rel=1e-12)
+    assert ustar_sigma(sums.drop(columns="ustar_seasonal"), (16, 84)).iloc[0] == \
+        pytest.approx(bootstrap, rel=1e-12)
+
+
+def test_summer_threshold_raised_on_known_truth_is_warned_and_covered():
+    # Invented known truth: the demo site's recorded u* doubled in summer, so its summer
+    # nights lose flux below twice the planted threshold (0.36 instead of 0.18 m s-1).
+    frame, truth = demo.site_year(seed=0)
+    frame = frame.copy()
+    summer = frame.index.month.isin([6, 7, 8])
+    frame.loc[summer, "ustar"] = frame.loc[summer, "ustar"] * 2.0
+    config = fluxpart.Config(ustar_bootstrap_draws=20, random_error_draws=50)
+    result = fluxpart.process(frame, demo.site(), config)
+    annual = result.annual.iloc[0]
+    true_nee = float(np.sum(flux_to_carbon(truth["nee"].to_numpy(), 30)))
+
+    assert any("changes with the season: summer" in w for w in result.warnings)
+    seasonal, central = float(annual["nee_ustar_seasonal"]), float(annual["nee"])
+    assert abs(seasonal - true_nee) < abs(central - true_nee)
+    assert float(annual["nee_uncertainty_ustar"]) >= abs(seasonal - central)
+    assert annual["nee_ci95_low"] <= true_nee <= annual["nee_ci95_high"]
+
+
+def test_no_seasonal_run_where_one_threshold_holds(written_demo):
+    result, _ = written_demo
+    assert "nee_ustar_seasonal" not in result.annual.columns
+    assert not any("changes with the season" in w for w in result.warnings)
