@@ -811,7 +811,7 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
     plan = [(real_lengths, False)] * int(rounds)
     if long_lengths.size:
         plan += [(long_lengths, True)] * int(rounds)
-    rows = []
+    rows = []                   # per round and class: the columns, made a table once at the end
     for number, (pool, is_long) in enumerate(plan):
         mask = np.zeros(n, dtype=bool)
         draws = 1 if is_long else 64       # a long gap alone can hold out the round's share
@@ -836,18 +836,20 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
                 continue
             count = np.bincount(ids, minlength=lengths.size)
             keep = np.flatnonzero(count)
-            rows.append(pd.DataFrame({
-                "round": number, "gap": keep, "record_class": name,
+            rows.append({
+                "round": np.full(keep.size, number), "gap": keep,
+                "record_class": np.full(keep.size, name, dtype=object),
                 "records": count[keep],
                 "length": lengths[keep],
                 "error_sum": np.bincount(ids, weights=error[scored],
                                          minlength=lengths.size)[keep],
                 "noise_variance": np.bincount(ids, weights=np.square(noise[scored]),
                                               minlength=lengths.size)[keep],
-                "long": is_long, "start_day": first[keep] / per_day}))
+                "long": np.full(keep.size, is_long), "start_day": first[keep] / per_day})
     if not rows:
         return pd.DataFrame(columns=columns)
-    return pd.concat(rows, ignore_index=True)[columns]
+    return pd.DataFrame({column: np.concatenate([row[column] for row in rows])
+                         for column in columns})
 
 
 def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
