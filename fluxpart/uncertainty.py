@@ -1337,8 +1337,10 @@ def ustar_sigma(sums: pd.DataFrame, percentiles) -> pd.Series:
     spans = [z[c] for c in runs]
     if len(runs) < 2 or max(spans) - min(spans) <= 0:
         return pd.Series(np.nan, index=sums.index)
-    table = sums[runs]
-    return (table.max(axis=1) - table.min(axis=1)) / (max(spans) - min(spans))
+    table = sums[runs].to_numpy(dtype=float)
+    # the range over the runs a period has (NaN-skipping, as DataFrame.max and min)
+    spread = np.fmax.reduce(table, axis=1) - np.fmin.reduce(table, axis=1)
+    return pd.Series(spread / (max(spans) - min(spans)), index=sums.index)
 
 
 @dataclass(frozen=True)
@@ -1673,10 +1675,15 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     keys = np.asarray(keys)
     index = pd.Index(pd.unique(keys))
     fluxes = inputs.fluxes
-    carbon = (fluxes * factor).groupby(keys).sum(min_count=1).reindex(index)
     out = {}                    # the columns, made a table once at the end
 
     codes = pd.factorize(keys)[0]            # position in `index` of each record's period
+
+    def carbon_sums(frame):
+        """Each column's sum per period [g C m-2]; NaN where a period has no value."""
+        return (frame * factor).groupby(codes).sum(min_count=1).set_axis(index)
+
+    carbon = carbon_sums(fluxes)
 
     def per_period(values):
         sums = pd.Series(np.asarray(values, dtype=float)).groupby(codes).sum()
@@ -1747,12 +1754,12 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     out["nee_uncertainty_gapfill_bias"] = bias if gapfill_known else unknown
     out["nee_uncertainty_gapfill_bias_se"] = bias_se if gapfill_known else unknown
 
-    run_sums = {name: (frame * factor).groupby(keys).sum(min_count=1).reindex(index)
-                for name, frame in inputs.runs.items()}
+    run_sums = {name: carbon_sums(frame) for name, frame in inputs.runs.items()}
     ustar = {}
     for flux in _FLUXES:
         if run_sums:
-            table = pd.DataFrame({name: s[flux] for name, s in run_sums.items()})
+            table = pd.DataFrame({name: s[flux].to_numpy() for name, s in run_sums.items()},
+                                 index=index)
             ustar[flux] = ustar_sigma(table, ustar_percentiles)
         else:
             ustar[flux] = pd.Series(np.nan, index=index)
@@ -1827,8 +1834,13 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     out["reco_uncertainty_respiration_form"] = form
 
     def total(*parts):
-        table = pd.concat([pd.Series(p, index=index) for p in parts], axis=1)
-        return np.sqrt(np.square(table).sum(axis=1, min_count=1))
+        """√Σ part² per period over the parts it has; NaN where it has none."""
+        squares = np.square(np.stack([pd.Series(p, index=index).to_numpy(dtype=float)
+                                      for p in parts]))
+        known = ~np.isnan(squares)
+        # summed part after part, as DataFrame.sum(axis=1) sums its columns
+        sums = np.where(known, squares, 0.0).sum(axis=0)
+        return pd.Series(np.sqrt(np.where(known.any(axis=0), sums, np.nan)), index=index)
 
     nee_parts = [out["nee_uncertainty_random"], out["nee_uncertainty_gapfill"], ustar["nee"]]
     out["nee_uncertainty_total"] = total(*nee_parts)
