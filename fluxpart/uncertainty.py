@@ -1909,15 +1909,15 @@ def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame,
     if "nee" not in annual.columns:
         raise MissingColumnError("uncertainty_budget: the annual table has no column 'nee'")
     r = random.reindex(annual.index)
-    out = pd.DataFrame(index=annual.index.copy())
-    out["nee_uncertainty_random"] = r["random_sd"].astype(float)
-    out["nee_uncertainty_random_percentile_2_5"] = r["random_percentile_2_5"].astype(float)
-    out["nee_uncertainty_random_percentile_97_5"] = r["random_percentile_97_5"].astype(float)
-    out["nee_uncertainty_random_analytic"] = r["analytic_sd"].astype(float)
+    out = {                     # the columns, made a table once at the end
+        "nee_uncertainty_random": r["random_sd"].astype(float),
+        "nee_uncertainty_random_percentile_2_5": r["random_percentile_2_5"].astype(float),
+        "nee_uncertainty_random_percentile_97_5": r["random_percentile_97_5"].astype(float),
+        "nee_uncertainty_random_analytic": r["analytic_sd"].astype(float)}
     if parts is None:
         parts = pd.DataFrame(index=annual.index)
     parts = parts.reindex(annual.index)
-    for column in [c for c in ANNUAL_COLUMNS if c in parts.columns and c not in out.columns
+    for column in [c for c in ANNUAL_COLUMNS if c in parts.columns and c not in out
                    and not c.endswith("_sigma")]:
         out[column] = parts[column].astype(float)
     for column in ANNUAL_COLUMNS:
@@ -1925,8 +1925,8 @@ def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame,
                              "_uncertainty_parameters", "_uncertainty_partitioning",
                              "_uncertainty_total"))
                 or column in ("nee_uncertainty_gapfill_bias", "nee_uncertainty_gapfill_bias_se")) \
-                and column not in out.columns:
-            out[column] = np.nan
+                and column not in out:
+            out[column] = pd.Series(np.nan, index=annual.index)
     # the Monte Carlo standard deviation replaces the analytic random part in the total
     random_part = out["nee_uncertainty_random"]
     fill_part = out["nee_uncertainty_gapfill"]
@@ -1948,9 +1948,9 @@ def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame,
                "partitioning": out["gpp_uncertainty_partitioning"].isna()
                | out["reco_uncertainty_partitioning"].isna()}
     labels = [", ".join(name for name, mask in missing.items() if mask.loc[year])
-              for year in out.index]
-    out["uncertainty_parts_missing"] = pd.Series(labels, index=out.index)
-    return out
+              for year in annual.index]
+    out["uncertainty_parts_missing"] = pd.Series(labels, index=annual.index)
+    return pd.DataFrame(out, index=annual.index.copy())
 
 
 def carbon_accounting_units(annual: pd.DataFrame) -> pd.DataFrame:
