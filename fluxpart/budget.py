@@ -320,7 +320,7 @@ def _summarise(carbon, per_record, keys, periods, expected_for, nee_column) -> p
     sums = carbon.fillna(0.0).groupby(keys).sum()
     sums = sums.mask(missing.groupby(keys).any()).reindex(periods)
     counts = per_record.groupby(keys).sum().reindex(periods, fill_value=0.0)
-    frame = sums.copy()
+    frame = {column: sums[column].to_numpy() for column in sums.columns}  # one table at the end
     records = counts["records"].to_numpy().astype("int64")
     unfilled = counts["records_unfilled"].to_numpy().astype("int64")
     expected = np.asarray(expected_for(periods), dtype="int64")
@@ -337,7 +337,7 @@ def _summarise(carbon, per_record, keys, periods, expected_for, nee_column) -> p
         frame["nee_share_from_filled"] = np.where(
             total > 0, counts["_abs_nee_filled"].to_numpy() / np.where(total > 0, total, 1.0),
             np.nan)
-    return frame
+    return pd.DataFrame(frame, index=sums.index)
 
 
 def _year_bounds(years: pd.Index, year_start: str) -> pd.DataFrame:

@@ -886,14 +886,15 @@ def _scenario_spread(annual, outcomes, index, interval, year_keys) -> pd.DataFra
                                    "gpp_daytime": day.gpp, "reco_daytime": day.reco},
                                   index=index)
         carbon = per_record * float(budget.flux_to_carbon(1.0, interval))
-        sums[name] = carbon.groupby(year_keys).sum(min_count=1)
+        sums[name] = carbon.groupby(year_keys).sum(min_count=1).reindex(annual.index)
     out = annual.copy()
     for flux in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
-        table = pd.DataFrame({name: s[flux] for name, s in sums.items()})
-        for name in table.columns:
+        table = np.stack([s[flux].to_numpy() for s in sums.values()], axis=1)   # years x runs
+        for name, column in zip(sums, table.T, strict=True):
             if name != "central":
-                out[f"{flux}_{name}"] = table[name].reindex(out.index)
-        out[f"{flux}_ustar_spread"] = (table.max(axis=1) - table.min(axis=1)).reindex(out.index)
+                out[f"{flux}_{name}"] = column
+        # the range over the runs a year has (NaN-skipping, as DataFrame.max and min)
+        out[f"{flux}_ustar_spread"] = np.fmax.reduce(table, axis=1) - np.fmin.reduce(table, axis=1)
     return out
 
 

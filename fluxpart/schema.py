@@ -524,9 +524,11 @@ def as_labels(codes, labels: dict[int, str]) -> pd.Categorical:
     unknown = np.setdiff1d(np.unique(values), np.asarray(order))
     if unknown.size:
         raise ValueError(f"codes without a label: {unknown.tolist()}")
-    position = {code: i for i, code in enumerate(order)}
-    lookup = np.vectorize(position.__getitem__, otypes=[np.int64])
-    indices = lookup(values) if values.size else np.zeros(0, dtype=np.int64)
+    # the position in `order` of every code, from one array indexed by code - lowest
+    lowest = min(order)
+    position = np.zeros(max(order) - lowest + 1, dtype=np.int64)
+    position[np.asarray(order) - lowest] = np.arange(len(order))
+    indices = position[values.astype(np.int64) - lowest]
     return pd.Categorical.from_codes(indices, categories=[labels[c] for c in order])
 
 

@@ -811,7 +811,7 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
     plan = [(real_lengths, False)] * int(rounds)
     if long_lengths.size:
         plan += [(long_lengths, True)] * int(rounds)
-    rows = []
+    rows = []                   # per round and class: the columns, made a table once at the end
     for number, (pool, is_long) in enumerate(plan):
         mask = np.zeros(n, dtype=bool)
         draws = 1 if is_long else 64       # a long gap alone can hold out the round's share
@@ -836,18 +836,20 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
                 continue
             count = np.bincount(ids, minlength=lengths.size)
             keep = np.flatnonzero(count)
-            rows.append(pd.DataFrame({
-                "round": number, "gap": keep, "record_class": name,
+            rows.append({
+                "round": np.full(keep.size, number), "gap": keep,
+                "record_class": np.full(keep.size, name, dtype=object),
                 "records": count[keep],
                 "length": lengths[keep],
                 "error_sum": np.bincount(ids, weights=error[scored],
                                          minlength=lengths.size)[keep],
                 "noise_variance": np.bincount(ids, weights=np.square(noise[scored]),
                                               minlength=lengths.size)[keep],
-                "long": is_long, "start_day": first[keep] / per_day}))
+                "long": np.full(keep.size, is_long), "start_day": first[keep] / per_day})
     if not rows:
         return pd.DataFrame(columns=columns)
-    return pd.concat(rows, ignore_index=True)[columns]
+    return pd.DataFrame({column: np.concatenate([row[column] for row in rows])
+                         for column in columns})
 
 
 def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
@@ -1342,8 +1344,10 @@ def ustar_sigma(sums: pd.DataFrame, percentiles) -> pd.Series:
     if len(runs) < 2 or max(spans) - min(spans) <= 0:
         sigma = pd.Series(np.nan, index=sums.index)
     else:
-        table = sums[runs]
-        sigma = (table.max(axis=1) - table.min(axis=1)) / (max(spans) - min(spans))
+        table = sums[runs].to_numpy(dtype=float)
+        # the range over the runs a period has (NaN-skipping, as DataFrame.max and min)
+        spread = np.fmax.reduce(table, axis=1) - np.fmin.reduce(table, axis=1)
+        sigma = pd.Series(spread / (max(spans) - min(spans)), index=sums.index)
     if "ustar_seasonal" in sums.columns and "central" in sums.columns:
         shift = (sums["ustar_seasonal"] - sums["central"]).abs()
         sigma = np.sqrt(sigma.fillna(0.0) ** 2 + shift**2).where(
@@ -1683,10 +1687,15 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     keys = np.asarray(keys)
     index = pd.Index(pd.unique(keys))
     fluxes = inputs.fluxes
-    carbon = (fluxes * factor).groupby(keys).sum(min_count=1).reindex(index)
     out = {}                    # the columns, made a table once at the end
 
     codes = pd.factorize(keys)[0]            # position in `index` of each record's period
+
+    def carbon_sums(frame):
+        """Each column's sum per period [g C m-2]; NaN where a period has no value."""
+        return (frame * factor).groupby(codes).sum(min_count=1).set_axis(index)
+
+    carbon = carbon_sums(fluxes)
 
     def per_period(values):
         sums = pd.Series(np.asarray(values, dtype=float)).groupby(codes).sum()
@@ -1757,12 +1766,12 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     out["nee_uncertainty_gapfill_bias"] = bias if gapfill_known else unknown
     out["nee_uncertainty_gapfill_bias_se"] = bias_se if gapfill_known else unknown
 
-    run_sums = {name: (frame * factor).groupby(keys).sum(min_count=1).reindex(index)
-                for name, frame in inputs.runs.items()}
+    run_sums = {name: carbon_sums(frame) for name, frame in inputs.runs.items()}
     ustar = {}
     for flux in _FLUXES:
         if run_sums:
-            table = pd.DataFrame({name: s[flux] for name, s in run_sums.items()})
+            table = pd.DataFrame({name: s[flux].to_numpy() for name, s in run_sums.items()},
+                                 index=index)
             ustar[flux] = ustar_sigma(table, ustar_percentiles)
         else:
             ustar[flux] = pd.Series(np.nan, index=index)
@@ -1837,8 +1846,13 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     out["reco_uncertainty_respiration_form"] = form
 
     def total(*parts):
-        table = pd.concat([pd.Series(p, index=index) for p in parts], axis=1)
-        return np.sqrt(np.square(table).sum(axis=1, min_count=1))
+        """√Σ part² per period over the parts it has; NaN where it has none."""
+        squares = np.square(np.stack([pd.Series(p, index=index).to_numpy(dtype=float)
+                                      for p in parts]))
+        known = ~np.isnan(squares)
+        # summed part after part, as DataFrame.sum(axis=1) sums its columns
+        sums = np.where(known, squares, 0.0).sum(axis=0)
+        return pd.Series(np.sqrt(np.where(known.any(axis=0), sums, np.nan)), index=index)
 
     nee_parts = [out["nee_uncertainty_random"], out["nee_uncertainty_gapfill"], ustar["nee"]]
     out["nee_uncertainty_total"] = total(*nee_parts)
@@ -1907,15 +1921,15 @@ def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame,
     if "nee" not in annual.columns:
         raise MissingColumnError("uncertainty_budget: the annual table has no column 'nee'")
     r = random.reindex(annual.index)
-    out = pd.DataFrame(index=annual.index.copy())
-    out["nee_uncertainty_random"] = r["random_sd"].astype(float)
-    out["nee_uncertainty_random_percentile_2_5"] = r["random_percentile_2_5"].astype(float)
-    out["nee_uncertainty_random_percentile_97_5"] = r["random_percentile_97_5"].astype(float)
-    out["nee_uncertainty_random_analytic"] = r["analytic_sd"].astype(float)
+    out = {                     # the columns, made a table once at the end
+        "nee_uncertainty_random": r["random_sd"].astype(float),
+        "nee_uncertainty_random_percentile_2_5": r["random_percentile_2_5"].astype(float),
+        "nee_uncertainty_random_percentile_97_5": r["random_percentile_97_5"].astype(float),
+        "nee_uncertainty_random_analytic": r["analytic_sd"].astype(float)}
     if parts is None:
         parts = pd.DataFrame(index=annual.index)
     parts = parts.reindex(annual.index)
-    for column in [c for c in ANNUAL_COLUMNS if c in parts.columns and c not in out.columns
+    for column in [c for c in ANNUAL_COLUMNS if c in parts.columns and c not in out
                    and not c.endswith("_sigma")]:
         out[column] = parts[column].astype(float)
     for column in ANNUAL_COLUMNS:
@@ -1923,8 +1937,8 @@ def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame,
                              "_uncertainty_parameters", "_uncertainty_partitioning",
                              "_uncertainty_total"))
                 or column in ("nee_uncertainty_gapfill_bias", "nee_uncertainty_gapfill_bias_se")) \
-                and column not in out.columns:
-            out[column] = np.nan
+                and column not in out:
+            out[column] = pd.Series(np.nan, index=annual.index)
     # the Monte Carlo standard deviation replaces the analytic random part in the total
     random_part = out["nee_uncertainty_random"]
     fill_part = out["nee_uncertainty_gapfill"]
@@ -1946,9 +1960,9 @@ def uncertainty_budget(annual: pd.DataFrame, random: pd.DataFrame,
                "partitioning": out["gpp_uncertainty_partitioning"].isna()
                | out["reco_uncertainty_partitioning"].isna()}
     labels = [", ".join(name for name, mask in missing.items() if mask.loc[year])
-              for year in out.index]
-    out["uncertainty_parts_missing"] = pd.Series(labels, index=out.index)
-    return out
+              for year in annual.index]
+    out["uncertainty_parts_missing"] = pd.Series(labels, index=annual.index)
+    return pd.DataFrame(out, index=annual.index.copy())
 
 
 def carbon_accounting_units(annual: pd.DataFrame) -> pd.DataFrame:

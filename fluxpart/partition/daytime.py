@@ -1426,7 +1426,7 @@ def _parameter_table(index, fit) -> pd.DataFrame:
                                             fit["theta"], fit["errors"])
     e0_fit, status, count = fit["e0_fit"], fit["status"], len(fit["starts"])
     reason = np.where(fit["reason"] == "", "ok", fit["reason"])
-    table = pd.DataFrame({
+    return pd.DataFrame({          # the columns in the order of PARAMETER_COLUMNS
         "window_start": to_time(starts),
         "window_end": to_time(ends),
         "window_centre": to_time((starts + ends) / 2.0),
@@ -1457,4 +1457,3 @@ def _parameter_table(index, fit) -> pd.DataFrame:
         "reason": reason.astype(str),
         "k_fixed": fit["k_fixed"],
     })
-    return table[list(PARAMETER_COLUMNS)]

@@ -637,12 +637,14 @@ def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
 
 def _year_table(rows, dtypes) -> pd.DataFrame:
     """One row per year from tuples in the order of `dtypes` (column -> dtype), by year."""
-    columns = list(zip(*rows, strict=True)) if rows else [()] * len(dtypes)
+    columns = dict(zip(dtypes, list(zip(*rows, strict=True)) if rows else [()] * len(dtypes),
+                       strict=True))
+    year = pd.Index(np.array(columns.pop("year"), dtype=dtypes["year"]), name="year")
     return pd.DataFrame({
-        name: pd.array(list(values), dtype="str") if dtype == "str"
-        else np.array(values, dtype=dtype)
-        for (name, dtype), values in zip(dtypes.items(), columns, strict=True)
-    }).set_index("year")
+        name: pd.array(list(values), dtype="str") if dtypes[name] == "str"
+        else np.array(values, dtype=dtypes[name])
+        for name, values in columns.items()
+    }, index=year)
 
 
 def _absolute_deviation_profile(flux, term, starts, grid):
