@@ -27,7 +27,7 @@ from .errors import (
 )
 
 # The unit conversions live in fluxpart.units; re-exported here for existing callers.
-from .timestamps import budget_years
+from .timestamps import budget_year_numbers
 from .units import GRAMS_CARBON_PER_UMOL, flux_to_carbon
 from .units import interval_seconds as _interval_seconds
 
@@ -221,7 +221,7 @@ def aggregate(timeseries: pd.DataFrame, interval_minutes, *, fluxes=None,
                          * per_day, nee_out)
     monthly.index.name = "month"
 
-    year_keys = pd.Index(budget_years(index, year_start)["year"].to_numpy())
+    year_keys = pd.Index(budget_year_numbers(index, year_start))
     years = pd.Index(np.arange(year_keys.min(), year_keys.max() + 1, dtype="int64"))
     bounds = _year_bounds(years, year_start)
     annual = _summarise(carbon, per_record, year_keys, years,

@@ -730,7 +730,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                                year_start=config.year_start)
     # budget year of each record ([processing] year_start); u* thresholds and the
     # annual E0 stay per calendar year of data
-    year_keys = timestamps.budget_years(frame.index, config.year_start)["year"].to_numpy()
+    year_keys = timestamps.budget_year_numbers(frame.index, config.year_start)
     daily = agreement.method_agreement(budgets.daily, config.agreement_margin)
     monthly = agreement.method_agreement(budgets.monthly, config.agreement_margin)
     annual = agreement.method_agreement(budgets.annual, config.agreement_margin)

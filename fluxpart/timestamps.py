@@ -32,6 +32,7 @@ from .errors import (
 __all__ = [
     "INTERVALS_MINUTES",
     "ParsedStamps",
+    "budget_year_numbers",
     "budget_years",
     "check_order",
     "check_time_zone",
@@ -769,12 +770,37 @@ def budget_years(index, year_start: str = "01-01") -> pd.DataFrame:
     """
     month, day = _month_day(year_start)
     index = pd.DatetimeIndex(index)
-    before = (index.month < month) | ((index.month == month) & (index.day < day))
-    years = np.asarray(index.year, dtype=np.int64) - before.astype(np.int64)
+    years = budget_year_numbers(index, year_start)
     starts = pd.to_datetime({"year": years, "month": month, "day": day})
     ends = pd.to_datetime({"year": years + 1, "month": month, "day": day})
     return pd.DataFrame({"year": years, "period_start": starts.to_numpy(),
                          "period_end": ends.to_numpy()}, index=index)
+
+
+def budget_year_numbers(index, year_start: str = "01-01") -> np.ndarray:
+    """The ``year`` column of :func:`budget_years` alone, without the period bounds.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Interval starts in local standard time.
+    year_start : str
+        First day of the budget year as ``"MM-DD"``.
+
+    Returns
+    -------
+    numpy.ndarray of int64
+        For each interval start, the calendar year in which its budget year starts.
+
+    Raises
+    ------
+    ConfigError
+        `year_start` is not a valid ``"MM-DD"`` day.
+    """
+    month, day = _month_day(year_start)
+    index = pd.DatetimeIndex(index)
+    before = (index.month < month) | ((index.month == month) & (index.day < day))
+    return np.asarray(index.year, dtype=np.int64) - before.astype(np.int64)
 
 
 def _month_day(year_start) -> tuple[int, int]:

@@ -14,6 +14,7 @@ import pytest
 
 from fluxpart.errors import ConfigError, SpacingError, TimestampError
 from fluxpart.timestamps import (
+    budget_year_numbers,
     budget_years,
     check_time_zone,
     infer_interval,
@@ -39,6 +40,18 @@ def test_budget_years_southern_season():
     # a budget year is 365 or 366 days by the calendar (Python's datetime)
     length = (table["period_end"] - table["period_start"]).dt.days.tolist()
     assert length == [(datetime(2021, 7, 1) - datetime(2020, 7, 1)).days, 365, 365]
+
+
+def test_budget_year_numbers_without_the_period_bounds():
+    """The year alone: 30 June 23:30 belongs to the July-June year that began in 2020, the
+    next half hour to the one beginning 1 July 2021 (calendar fact); as budget_years says."""
+    index = pd.DatetimeIndex(["2021-06-30 23:30", "2021-07-01 00:00", "2021-12-31 23:30",
+                              "2022-01-01 00:00"])
+    years = budget_year_numbers(index, "07-01")
+    assert years.dtype == np.int64
+    assert years.tolist() == [2020, 2021, 2021, 2021]
+    assert budget_year_numbers(index).tolist() == [2021, 2021, 2021, 2022]
+    assert np.array_equal(years, budget_years(index, "07-01")["year"].to_numpy())
 
 
 @pytest.mark.parametrize("value", ["7-1", "02-29", "13-01", "07/01", 701])
