@@ -464,17 +464,6 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     return screens.counts.drop(labels=["low_ustar"], errors="ignore"), table
 
 
-def _seasonal_ustar_warning(row) -> str:
-    return (f"u* threshold in {row.year} changes with the season: {row.season} "
-            f"{row.season_threshold:.3f} m s-1 (bootstrap 5th percentile "
-            f"{row.season_p05:.3f}) against the year's {row.year_threshold:.3f} applied to "
-            f"every night, while {row.lowest_season} lies at most {row.lowest_p95:.3f}. "
-            f"{row.season.capitalize()} nights between the two thresholds lost flux but are "
-            "kept: annual NEE may be too negative. The run with each season's own threshold "
-            "(annual columns *_ustar_seasonal) is added to the u* part of the uncertainty; "
-            "ustar_annual = \"maximum\" applies the largest seasonal threshold to the year")
-
-
 def _per_record(index, per_year: pd.Series) -> np.ndarray:
     return per_year.reindex(index.year).to_numpy(dtype=float)
 
@@ -663,7 +652,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     if not contrast.empty:
         runs["ustar_seasonal"] = ustar_seasonal.seasonal_thresholds(
             frame.index, site.latitude, ustar_table, runs["central"], contrast["year"])
-        warnings.extend(_seasonal_ustar_warning(row) for row in contrast.itertuples())
+        warnings.extend(ustar_seasonal.contrast_warnings(contrast))
     arguments = (frame, screened, filled_drivers, conditions, is_night)
     # one after another: in two threads the runs cost ~12 % more CPU and ~16 MB more
     # memory for no gain in wall time (GIL-bound); sites run in parallel in `batch`

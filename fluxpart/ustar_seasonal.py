@@ -36,7 +36,7 @@ import pandas as pd
 
 from .ustar import SEASONS, assign_seasons
 
-__all__ = ["SEASONAL_MARGIN", "seasonal_contrast", "seasonal_thresholds"]
+__all__ = ["SEASONAL_MARGIN", "contrast_warnings", "seasonal_contrast", "seasonal_thresholds"]
 
 #: A season's threshold counts as clearly above the year's when it exceeds it by more
 #: than this factor [1]: 1.2, the ±20 % within which the detector is expected to
@@ -117,6 +117,18 @@ def seasonal_thresholds(index, latitude, table: pd.DataFrame, central: np.ndarra
                                                         own["period"].astype(str)]))
     keys = pd.MultiIndex.from_arrays([seasons["year"].to_numpy(),
                                       seasons["season"].astype(str).to_numpy()])
-    values = lookup.reindex(keys).to_numpy(dtype=float) if len(lookup) else \
-        np.full(len(index), np.nan)
+    values = lookup.reindex(keys).to_numpy(dtype=float)
     return np.where(np.isfinite(values), values, np.asarray(central, dtype=float))
+
+
+def contrast_warnings(contrast: pd.DataFrame) -> list[str]:
+    """One warning per row of :func:`seasonal_contrast`, naming the seasons and thresholds."""
+    return [f"u* threshold in {row.year} changes with the season: {row.season} "
+            f"{row.season_threshold:.3f} m s-1 (bootstrap 5th percentile "
+            f"{row.season_p05:.3f}) against the year's {row.year_threshold:.3f} applied to "
+            f"every night, while {row.lowest_season} lies at most {row.lowest_p95:.3f}. "
+            f"{row.season.capitalize()} nights between the two thresholds lost flux but are "
+            "kept: annual NEE may be too negative. The run with each season's own threshold "
+            "(annual columns *_ustar_seasonal) is added to the u* part of the uncertainty; "
+            "ustar_annual = \"maximum\" applies the largest seasonal threshold to the year"
+            for row in contrast.itertuples()]
