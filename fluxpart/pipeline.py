@@ -802,12 +802,14 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
     nee_measured = timeseries["nee_measured"].to_numpy(dtype=float)
     measured = np.isfinite(nee_measured)
     noise = np.where(measured, sigma, 0.0)
-    # only the held-out records are scored, so only they are filled (the same fills)
+    # only the held-out records are scored, so only they are filled (the same fills);
+    # each artificial gap hides the drivers its real gap lacked
     gap_errors = uncertainty.artificial_gap_errors(
         nee_measured, noise, is_night,
-        lambda values: _fill_nee(values, conditions, index, is_night, config,
-                                 gaps=measured & np.isnan(values))["value"],
-        seed=config.seed, records_per_day=24 * 60 // interval)
+        lambda values, hidden: _fill_nee(values, conditions.mask(hidden), index, is_night,
+                                         config, gaps=measured & np.isnan(values))["value"],
+        seed=config.seed, records_per_day=24 * 60 // interval,
+        conditions_missing=conditions.isna().to_numpy())
     gapfill_model = uncertainty.gapfill_error_model(gap_errors)
     runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
                                 "reco_nighttime": n.reco, "gpp_daytime": d.gpp,

@@ -289,6 +289,11 @@ RANDOM_ERROR_MODEL_COLUMNS: dict[str, tuple[str, str]] = {
                              "records of one class (night or day) in different gaps at most 7 days apart"),
     "gaps": ("1", "artificial gaps scored"),
     "long_gap_blocks": ("1", "7-day blocks of artificial gaps longer than one day scored"),
+    "day_night_correlation": ("1", "gap filling: correlation of the shared fill errors of the "
+                                   "night and the day records of one gap of a day or less"),
+    "day_night_correlation_long": ("1", "gap filling: correlation of the shared fill errors of "
+                                        "the night and the day records of one 7-day block of a "
+                                        "gap longer than a day"),
     "records": ("1", "held-out measured records scored"),
 }
 

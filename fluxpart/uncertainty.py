@@ -134,6 +134,10 @@ _CLASSES = ("uptake", "release")
 _GAP_ROUNDS = 6
 _GAP_SHARE = 0.1
 _GAP_MIN_RECORDS = 50
+#: An artificial gap longer than a day is placed where its own length of measured
+#: records lies on each side (no real long gap or earlier artificial gap there), as
+#: around the real gap it copies; random starts tried before one is taken anyway.
+_CLEAR_TRIES = 50
 #: Fills of different gaps at most this far apart [days] share part of their error: the
 #: first window of marginal distribution sampling's driver steps is ±7 days (Reichstein,
 #: gap-filling flow chart, workshop slides 2004), so fills that close draw on
@@ -734,8 +738,24 @@ def _block_ids(mask, block_records: int) -> np.ndarray:
     return np.where(mask, np.cumsum(begins) - 1, -1)
 
 
+def _clear_start(start, length, occupied, rng, tries=_CLEAR_TRIES) -> int:
+    """A start for an artificial gap of `length` records with measured records around it.
+
+    The first of `start` and up to `tries` further random starts whose gap, widened
+    by its own length on each side, meets no `occupied` record (a real long gap or
+    an artificial one placed before); the last start drawn if none does.
+    """
+    n = occupied.size
+    for _ in range(tries):
+        if not occupied[max(start - length, 0):start + 2 * length].any():
+            return int(start)
+        start = int(rng.integers(0, n))
+    return int(start)
+
+
 def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_GAP_ROUNDS,
-                          share=_GAP_SHARE, seed=0, records_per_day=None) -> pd.DataFrame:
+                          share=_GAP_SHARE, seed=0, records_per_day=None,
+                          conditions_missing=None) -> pd.DataFrame:
     """Score gap filling on artificial gaps cut into the site's own measured records.
 
     Parameters
@@ -748,10 +768,12 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
     is_night : array_like of bool
         Night records.
     fill : callable
-        ``fill(values) -> filled values``: the pipeline's own NEE gap filling of a
-        series with NaN gaps (same method and settings as the real fill).
+        ``fill(values, hidden) -> filled values``: the pipeline's own NEE gap
+        filling of a series with NaN gaps (same method and settings as the real
+        fill), with the similarity conditions marked True in `hidden` (a boolean
+        array like `conditions_missing`, or None) treated as unavailable.
     rounds : int, optional
-        Independent sets of artificial gaps, one fill each; default 3 (our choice).
+        Independent sets of artificial gaps, one fill each; default 6 (our choice; see ``_GAP_ROUNDS``).
     share : float, optional
         Share of the measured records held out per round; default 0.1 (our choice:
         small enough that donors stay nearly as plentiful as in the real fill).
@@ -760,6 +782,14 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
     records_per_day : int, optional
         Records per day. Given, gaps longer than one day get rounds of their own
         (``long``) and every gap its ``start_day``; None (default): neither.
+    conditions_missing : array_like of bool, optional
+        Shape (records,) or (records, conditions): True where a similarity
+        condition of the real fill (a driver: Rg, Tair, VPD) was unavailable.
+        Given, each artificial gap also hides the conditions that were missing in
+        the real gap it takes its length from, record by record from the gap's
+        start, so that a site's outages of every sensor are scored as the fills
+        of such outages (by the mean diurnal course) are made. None (default):
+        no condition is hidden (`fill` gets ``hidden=None``).
 
     Returns
     -------
@@ -779,13 +809,22 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
     -----
     The gap lengths are drawn from the site's own real gaps (each real gap equally
     likely), placed at random starts; only the measured records inside an
-    artificial gap are scored. Gaps longer than a day are rare among a site's
+    artificial gap are scored. With `conditions_missing`, an artificial gap
+    copies the driver gaps of its real gap as well: a gap whose drivers were
+    recorded is filled from similar conditions, one in an outage of the whole
+    station only from the diurnal course, and the two differ several-fold in
+    error. Gaps longer than a day are rare among a site's
     gaps (a few in thousands) but carry most of a month's gap-filling error, so
     where the site has any, `rounds` further rounds hold out only such gaps,
     their lengths drawn from the site's own gaps longer than a day. The fill of a held-out record differs from its
     measured value by the fill error minus the measurement's random error; the
     latter is independent of the fill, so its variance is subtracted when the
-    error model is fitted (:func:`gapfill_error_model`). Falge et al. (2001)
+    error model is fitted (:func:`gapfill_error_model`). An artificial gap longer
+    than a day is placed with its own length of records clear of real long gaps and
+    of the round's other gaps on each side: stacked against another outage it
+    would be filled from donors twice as far away as the real gap it copies, and
+    (hiding the drivers) read the error of diurnal-course fills 1.2–2 times too
+    large on generated known-truth site-years. Falge et al. (2001)
     and Moffat et al. (2007) scored gap-filling methods in this way on
     artificial gaps of several lengths.
 
@@ -799,7 +838,15 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
     noise = _values(noise_sigma, "noise_sigma", n)
     night = np.asarray(is_night, dtype=bool)
     measured = np.isfinite(nee)
-    _, real_lengths = gap_runs(~measured)
+    real_starts, real_lengths = gap_runs(~measured)
+    hidden_real = None
+    if conditions_missing is not None:
+        hidden_real = np.asarray(conditions_missing, dtype=bool)
+        if hidden_real.shape[0] != n:
+            raise ValueError(f"conditions_missing has {hidden_real.shape[0]} records; "
+                             f"nee_measured has {n}")
+        # only the pattern inside the real gaps is copied
+        hidden_real = hidden_real & ~measured.reshape((n,) + (1,) * (hidden_real.ndim - 1))
     columns = ["round", "gap", "record_class", "records", "length", "error_sum",
                "noise_variance", "long", "start_day"]
     if real_lengths.size == 0 or measured.sum() < 10:
@@ -807,21 +854,33 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
     rng = np.random.default_rng([int(seed), 2007])
     target = share * measured.sum()
     per_day = np.nan if records_per_day is None else float(records_per_day)
-    long_lengths = real_lengths[real_lengths > per_day] if records_per_day else real_lengths[:0]
-    plan = [(real_lengths, False)] * int(rounds)
-    if long_lengths.size:
-        plan += [(long_lengths, True)] * int(rounds)
+    every_gap = np.arange(real_lengths.size)
+    long_gaps = every_gap[real_lengths > per_day] if records_per_day else every_gap[:0]
+    long_real = np.zeros(n, dtype=bool)
+    for gap in long_gaps:
+        long_real[real_starts[gap]:real_starts[gap] + real_lengths[gap]] = True
+    plan = [(every_gap, False)] * int(rounds)
+    if long_gaps.size:
+        plan += [(long_gaps, True)] * int(rounds)
     rows = []                   # per round and class: the columns, made a table once at the end
     for number, (pool, is_long) in enumerate(plan):
         mask = np.zeros(n, dtype=bool)
+        hidden = None if hidden_real is None else np.zeros_like(hidden_real)
         draws = 1 if is_long else 64       # a long gap alone can hold out the round's share
         while (mask & measured).sum() < target:
-            lengths = rng.choice(pool, size=draws)
+            gaps = rng.choice(pool, size=draws)
             starts = rng.integers(0, n, size=draws)
-            for start, length in zip(starts, lengths, strict=True):
+            for start, gap in zip(starts, gaps, strict=True):
+                length = real_lengths[gap]
+                if is_long:
+                    start = _clear_start(start, length, mask | long_real, rng)
                 mask[start:start + length] = True
+                if hidden is not None:
+                    stop = min(start + length, n)
+                    source = real_starts[gap]
+                    hidden[start:stop] |= hidden_real[source:source + stop - start]
         held = mask & measured
-        filled = np.asarray(fill(np.where(mask, np.nan, nee)), dtype=float)
+        filled = np.asarray(fill(np.where(mask, np.nan, nee), hidden), dtype=float)
         error = np.where(held, filled - nee, 0.0)
         gap_id = _run_ids(mask)
         # a gap longer than a day is scored by blocks of 7 days (gapfill_error_model)
@@ -869,7 +928,8 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
         ``correlated_variance_long`` b for gaps longer than one day and
         ``neighbour_covariance`` c [(µmol m-2 s-1)²], ``gaps`` and ``records``
         scored, ``long_gap_blocks`` (7-day blocks of the gaps longer than one day
-        scored). A class without scores gets NaN.
+        scored), ``day_night_correlation`` and ``day_night_correlation_long`` ρ
+        [1] (the same in both rows). A class without scores gets NaN.
 
     Notes
     -----
@@ -899,6 +959,17 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
     neighbour covariance below). ``b_long = Σ((S − bias·m)² − Σσ² − a·m) / Σm²``
     over the blocks, at least b (equal to b where the site has no gap longer
     than a day).
+
+    Night and day records of one gap (or 7-day block) share their errors with
+    correlation ρ (short gaps) and ρ_long (the blocks of gaps longer than a day):
+    the shared variance of a gap with n_n night and n_d day records is
+    b_n n_n² + b_d n_d² + 2ρ √(b_n b_d) n_n n_d. ρ is the moment estimate of the
+    cross products of the two classes' centred error sums over the gaps scored in
+    both (:func:`_day_night_correlation`), within [0, 1]. Taking ρ = 1, as
+    before 0.9.0, read the error of week-long fills 1.2–1.5 times too large:
+    night fill errors follow the respiration level, day fill errors the light
+    response and the weather of the days the donors come from, and on generated
+    known-truth site-years the two were nearly independent.
 
     Fills of different gaps: gaps within a week of each other are filled from
     overlapping donors under the same weather, so their errors are correlated.
@@ -956,7 +1027,40 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
                       "long_gap_blocks": len(long_part)}
     table = pd.DataFrame.from_dict(rows, orient="index")
     table.index.name = "record_class"
+    for is_long, variance, column in ((False, "correlated_variance", "day_night_correlation"),
+                                      (True, "correlated_variance_long",
+                                       "day_night_correlation_long")):
+        table[column] = _day_night_correlation(errors[long == is_long], table["bias"],
+                                               table[variance])
     return table
+
+
+def _day_night_correlation(errors: pd.DataFrame, bias: pd.Series, shared: pd.Series) -> float:
+    """Correlation of the shared fill errors of the night and the day records of one gap.
+
+    Moment estimate over the gaps (or 7-day blocks) scored in both classes: the
+    covariance per (night, day) record pair ``Σ S_n S_d / Σ n_n n_d`` of the
+    centred error sums, divided by ``√(b_night b_day)`` (`shared`), within
+    [0, 1]; 1 (fully shared, the upper bound) where it cannot be estimated.
+    The measurement noise of night and day records is independent, so nothing
+    is subtracted from the cross products.
+    """
+    if not {"round", "gap"} <= set(errors.columns) or bias.isna().any():
+        return 1.0
+    centred = errors["error_sum"].to_numpy(dtype=float) \
+        - bias.reindex(errors["record_class"]).to_numpy(dtype=float) \
+        * errors["records"].to_numpy(dtype=float)
+    table = pd.DataFrame({"round": errors["round"].to_numpy(), "gap": errors["gap"].to_numpy(),
+                          "night": (errors["record_class"] == "night").to_numpy(),
+                          "centred": centred, "records": errors["records"].to_numpy(float)})
+    pairs = table[table["night"]].merge(table[~table["night"]], on=["round", "gap"],
+                                        suffixes=("_night", "_day"))
+    weight = float(np.sum(pairs["records_night"] * pairs["records_day"]))
+    scale = float(np.sqrt(shared.get("night", np.nan) * shared.get("day", np.nan)))
+    if pairs.empty or weight <= 0 or not np.isfinite(scale) or scale <= 0:
+        return 1.0
+    covariance = float(np.sum(pairs["centred_night"] * pairs["centred_day"])) / weight
+    return float(np.clip(covariance / scale, 0.0, 1.0))
 
 
 def _neighbour_covariance(part: pd.DataFrame, bias: float) -> float:
@@ -1729,12 +1833,24 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
                     for name in ("bias", "bias_se", "independent_variance", "correlated_variance",
                                  "correlated_variance_long", "neighbour_covariance")}
         pick = {name: np.where(night, values[0], values[1]) for name, values in by_class.items()}
+        # a model table from before 0.9.0 has no correlations: fully shared, as then
+        correlation, correlation_long = (
+            float(model[column].iloc[0]) if column in model else 1.0
+            for column in ("day_night_correlation", "day_night_correlation_long"))
 
         def fill_variance(records):
             independent = per_period(np.where(records, pick["independent_variance"], 0.0))
             shared = np.where(long_gap, pick["correlated_variance_long"],
                               pick["correlated_variance"])
-            correlated = grouped(block_id, np.where(records, np.sqrt(shared), 0.0))
+            root = np.where(records, np.sqrt(shared), 0.0)
+            correlated = 0.0
+            for in_kind, rho in ((long_gap, correlation_long), (~long_gap, correlation)):
+                # per block (Σ night √b)² + (Σ day √b)² + 2ρ (Σ night √b)(Σ day √b)
+                both = np.where(in_kind, root, 0.0)
+                night_part = grouped(block_id, np.where(night, both, 0.0))
+                day_part = grouped(block_id, np.where(night, 0.0, both))
+                correlated = correlated + night_part + day_part \
+                    + rho * (grouped(block_id, both) - night_part - day_part)
             neighbours = per_period(np.where(records, pick["neighbour_covariance"] * _neighbour_pairs(
                 records, night, gap_id, codes, records_per_day), 0.0))
             # a fill averages measured records: 2 cov(fill, the period's measured records)

@@ -397,7 +397,8 @@ def test_artificial_gaps_score_a_biased_fill():
     measured[rng.random(n) < 0.3] = np.nan
     night = (np.arange(n) // 24) % 2 == 0
 
-    def fill(values):
+    def fill(values, hidden):
+        assert hidden is None
         return np.where(np.isnan(values), truth + 0.5, values)
 
     errors = artificial_gap_errors(measured, np.ones(n), night, fill, seed=1)
