@@ -762,6 +762,72 @@ def test_long_gaps_get_their_own_shared_variance_by_week_blocks():
     assert alone["correlated_variance_long"] == alone["correlated_variance"]
 
 
+def test_day_night_correlation_recovers_planted_correlation():
+    """Known truth (invented): night and day error sums of each gap share a level with
+    correlation rho, S = sqrt(b) m Z. The moment estimate Σ S_n S_d / (Σ m_n m_d
+    sqrt(b_n b_d)) recovers rho (0, 0.5, 1; Pearson's correlation of the shared
+    levels, elementary statistics), is clipped at 0 for a negative planted one, and
+    is 1 without the columns that pair the classes."""
+    from fluxpart.uncertainty import _day_night_correlation
+
+    rng = np.random.default_rng(12)
+    size = 4000
+    m_night, m_day = rng.integers(20, 150, size), rng.integers(20, 150, size)
+    b = pd.Series({"night": 0.04, "day": 0.09})
+    bias = pd.Series({"night": 0.0, "day": 0.0})
+    for rho in (0.0, 0.5, 1.0, -0.6):
+        z1 = rng.standard_normal(size)
+        z2 = rho * z1 + np.sqrt(1 - rho**2) * rng.standard_normal(size)
+        rows = pd.DataFrame({
+            "round": 0, "gap": np.r_[np.arange(size), np.arange(size)],
+            "record_class": ["night"] * size + ["day"] * size,
+            "records": np.r_[m_night, m_day],
+            "error_sum": np.r_[0.2 * m_night * z1, 0.3 * m_day * z2]})
+        assert _day_night_correlation(rows, bias, b) == pytest.approx(max(rho, 0.0), abs=0.06)
+    assert _day_night_correlation(rows.drop(columns="gap"), bias, b) == 1.0
+
+
+def test_artificial_gaps_copy_the_driver_gaps_of_their_real_gap():
+    """Each artificial gap hides, record by record from its start, the conditions its
+    real gap lacked: here the one real long gap (2 days) lacked the drivers in its
+    first day only, so every artificial long gap hides exactly its own first day,
+    and nothing is hidden outside artificial gaps. Long artificial gaps keep their
+    own length of measured records on each side of other long gaps."""
+    per_day = 48
+    n = 60 * per_day
+    rng = np.random.default_rng(3)
+    measured = rng.normal(0.0, 1.0, n)
+    real = slice(20 * per_day, 22 * per_day)
+    measured[real] = np.nan
+    conditions_missing = np.zeros(n, dtype=bool)
+    conditions_missing[20 * per_day:21 * per_day] = True
+    conditions_missing[40 * per_day:40 * per_day + 5] = True     # a driver gap, NEE measured
+    seen = []
+
+    def fill(values, hidden):
+        seen.append((np.isnan(values), hidden.copy()))
+        return np.where(np.isnan(values), 0.0, values)
+
+    artificial_gap_errors(measured, np.ones(n), np.zeros(n, dtype=bool), fill, seed=5,
+                          records_per_day=per_day, conditions_missing=conditions_missing)
+    from fluxpart.uncertainty import _GAP_ROUNDS
+
+    assert len(seen) == 2 * _GAP_ROUNDS          # rounds of all gaps, then of long gaps
+    for gaps, hidden in seen:
+        assert not (hidden & ~gaps).any()
+        assert not hidden[40 * per_day:40 * per_day + 5].any() or gaps[40 * per_day]
+    for gaps, hidden in seen[_GAP_ROUNDS:]:
+        artificial = gaps.copy()
+        artificial[real] = False
+        starts, lengths = gap_runs(artificial)
+        assert starts.size >= 2
+        for start, length in zip(starts, lengths, strict=True):
+            assert hidden[start:start + per_day].all()
+            assert not hidden[start + per_day:start + length].any()
+            assert length == 2 * per_day or start + length == n      # cut at the record's end
+            assert not gaps[max(start - length, 0):start].any()      # clear of other gaps
+
+
 def _filled_inputs(index, measured, model):
     """UncertaintyInputs with NEE = 1 everywhere, no other part."""
     from fluxpart.uncertainty import UncertaintyInputs
@@ -805,6 +871,37 @@ def test_period_gapfill_part_counts_neighbour_pairs_and_week_blocks():
     out = period_uncertainty(_filled_inputs(index, measured, long_model), np.zeros(n, int), 30)
     assert out["nee_uncertainty_gapfill"].iloc[0] == pytest.approx(
         np.sqrt(0.01 * (336**2 + 144**2)) * grams)
+
+
+def test_period_gapfill_part_shares_night_and_day_errors_by_their_correlation():
+    """Var(S_n + S_d) = Var S_n + Var S_d + 2 rho sd_n sd_d (elementary statistics): a
+    7-day gap (one block) of 168 night and 168 day records with b_long 0.01 (night) and
+    0.04 (day) has shared variance 168² (0.01 + 0.04 + 2 rho 0.02); a model table
+    without the correlation columns (before 0.9.0) counts them fully shared."""
+    from dataclasses import replace
+
+    from fluxpart.uncertainty import period_uncertainty
+
+    index = pd.date_range("2021-06-01", periods=30 * 48, freq="30min")
+    n = len(index)
+    measured = np.ones(n, dtype=bool)
+    measured[480:480 + 336] = False
+    night = (np.arange(n) % 48) < 24
+    model = pd.DataFrame({"bias": [0.0, 0.0], "bias_se": [0.0, 0.0],
+                          "independent_variance": [0.0, 0.0], "correlated_variance": [0.0, 0.0],
+                          "correlated_variance_long": [0.01, 0.04],
+                          "neighbour_covariance": [0.0, 0.0]},
+                         index=pd.Index(["night", "day"], name="record_class"))
+    grams = 1800 * 12.011e-6
+    for rho in (0.0, 0.5, 1.0):
+        inputs = replace(_filled_inputs(index, measured, model.assign(
+            day_night_correlation=1.0, day_night_correlation_long=rho)), is_night=night)
+        out = period_uncertainty(inputs, np.zeros(n, int), 30)["nee_uncertainty_gapfill"]
+        assert out.iloc[0] == pytest.approx(
+            168 * np.sqrt(0.01 + 0.04 + 2 * rho * 0.02) * grams, rel=1e-12)
+    old = period_uncertainty(replace(_filled_inputs(index, measured, model), is_night=night),
+                             np.zeros(n, int), 30)["nee_uncertainty_gapfill"]
+    assert old.iloc[0] == pytest.approx(168 * np.sqrt(0.09) * grams, rel=1e-12)
 
 
 def test_fill_covaries_with_the_measured_records_it_averages():
