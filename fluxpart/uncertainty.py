@@ -800,8 +800,7 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
         gap, or of the block, in the round), ``records`` (held-out measured
         records of the class), ``length`` (records in the whole gap),
         ``error_sum`` (Σ fill − measured [µmol m-2 s-1]), ``noise_variance``
-        (Σ σ² of the measured values [(µmol m-2 s-1)²]), ``fill_magnitude``
-        (Σ |fill| [µmol m-2 s-1]), ``long`` (the row
+        (Σ σ² of the measured values [(µmol m-2 s-1)²]), ``long`` (the row
         belongs to a round of gaps longer than one day) and ``start_day`` (the
         gap's, or block's, first record [days from the first record]; NaN
         without `records_per_day`).
@@ -849,7 +848,7 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
         # only the pattern inside the real gaps is copied
         hidden_real = hidden_real & ~measured.reshape((n,) + (1,) * (hidden_real.ndim - 1))
     columns = ["round", "gap", "record_class", "records", "length", "error_sum",
-               "noise_variance", "fill_magnitude", "long", "start_day"]
+               "noise_variance", "long", "start_day"]
     if real_lengths.size == 0 or measured.sum() < 10:
         return pd.DataFrame(columns=columns)
     rng = np.random.default_rng([int(seed), 2007])
@@ -904,8 +903,6 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
                 "error_sum": np.bincount(ids, weights=error[scored],
                                          minlength=lengths.size)[keep],
                 "noise_variance": np.bincount(ids, weights=np.square(noise[scored]),
-                                              minlength=lengths.size)[keep],
-                "fill_magnitude": np.bincount(ids, weights=np.abs(filled[scored]),
                                               minlength=lengths.size)[keep],
                 "long": np.full(keep.size, is_long), "start_day": first[keep] / per_day})
     if not rows:
@@ -1005,7 +1002,6 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
         if count.sum() < _GAP_MIN_RECORDS or len(part) < 3:
             rows[name] = {"bias": np.nan, "bias_se": np.nan, "independent_variance": np.nan,
                           "correlated_variance": np.nan, "correlated_variance_long": np.nan,
-                          "relative_variance_long": np.nan,
                           "neighbour_covariance": np.nan, "gaps": len(part),
                           "records": int(count.sum()), "long_gap_blocks": len(long_part)}
             continue
@@ -1014,7 +1010,7 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
         # unknown noise (no random-error model) is not subtracted: a and b then hold it too
         excess = np.square(centred) - np.nan_to_num(part["noise_variance"].to_numpy(dtype=float))
         a, b = _nonnegative_line_fit(count, excess / count)
-        b_long, b_relative = b, np.nan
+        b_long = b
         if len(long_part):
             long_count = long_part["records"].to_numpy(dtype=float)
             long_excess = np.square(long_part["error_sum"].to_numpy(dtype=float)
@@ -1022,53 +1018,44 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
                 - np.nan_to_num(long_part["noise_variance"].to_numpy(dtype=float)) \
                 - a * long_count
             b_long = max(float(long_excess.sum() / np.square(long_count).sum()), b)
-            if "fill_magnitude" in long_part:
-                magnitude = long_part["fill_magnitude"].to_numpy(dtype=float)
-                if np.square(magnitude).sum() > 0:
-                    b_relative = max(float(long_excess.sum() / np.square(magnitude).sum()), 0.0)
         rows[name] = {"bias": float(bias),
                       "bias_se": float(np.sqrt(np.square(centred).sum()) / count.sum()),
                       "independent_variance": float(a), "correlated_variance": float(b),
                       "correlated_variance_long": b_long,
-                      "relative_variance_long": b_relative,
                       "neighbour_covariance": _neighbour_covariance(part, bias),
                       "gaps": len(part), "records": int(count.sum()),
                       "long_gap_blocks": len(long_part)}
     table = pd.DataFrame.from_dict(rows, orient="index")
     table.index.name = "record_class"
-    relative = bool(table["relative_variance_long"].notna().all())
-    for is_long, variance, weight, column in (
-            (False, "correlated_variance", "records", "day_night_correlation"),
-            (True, "relative_variance_long" if relative else "correlated_variance_long",
-             "fill_magnitude" if relative else "records", "day_night_correlation_long")):
+    for is_long, variance, column in ((False, "correlated_variance", "day_night_correlation"),
+                                      (True, "correlated_variance_long",
+                                       "day_night_correlation_long")):
         table[column] = _day_night_correlation(errors[long == is_long], table["bias"],
-                                               table[variance], weight)
+                                               table[variance])
     return table
 
 
-def _day_night_correlation(errors: pd.DataFrame, bias: pd.Series, shared: pd.Series,
-                           weight: str = "records") -> float:
+def _day_night_correlation(errors: pd.DataFrame, bias: pd.Series, shared: pd.Series) -> float:
     """Correlation of the shared fill errors of the night and the day records of one gap.
 
     Moment estimate over the gaps (or 7-day blocks) scored in both classes: the
-    covariance per (night, day) record pair ``Σ S_n S_d / Σ w_n w_d`` of the
-    centred error sums (w: the column `weight`, records or the blocks' Σ|fill|),
-    divided by ``√(b_night b_day)`` (`shared`, per unit of that weight), within
+    covariance per (night, day) record pair ``Σ S_n S_d / Σ n_n n_d`` of the
+    centred error sums, divided by ``√(b_night b_day)`` (`shared`), within
     [0, 1]; 1 (fully shared, the upper bound) where it cannot be estimated.
     The measurement noise of night and day records is independent, so nothing
     is subtracted from the cross products.
     """
-    if not {"round", "gap", weight} <= set(errors.columns) or bias.isna().any():
+    if not {"round", "gap"} <= set(errors.columns) or bias.isna().any():
         return 1.0
     centred = errors["error_sum"].to_numpy(dtype=float) \
         - bias.reindex(errors["record_class"]).to_numpy(dtype=float) \
         * errors["records"].to_numpy(dtype=float)
     table = pd.DataFrame({"round": errors["round"].to_numpy(), "gap": errors["gap"].to_numpy(),
                           "night": (errors["record_class"] == "night").to_numpy(),
-                          "centred": centred, "weight": errors[weight].to_numpy(float)})
+                          "centred": centred, "records": errors["records"].to_numpy(float)})
     pairs = table[table["night"]].merge(table[~table["night"]], on=["round", "gap"],
                                         suffixes=("_night", "_day"))
-    weight = float(np.sum(pairs["weight_night"] * pairs["weight_day"]))
+    weight = float(np.sum(pairs["records_night"] * pairs["records_day"]))
     scale = float(np.sqrt(shared.get("night", np.nan) * shared.get("day", np.nan)))
     if pairs.empty or weight <= 0 or not np.isfinite(scale) or scale <= 0:
         return 1.0
@@ -1842,12 +1829,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             model = model.assign(correlated_variance_long=model["correlated_variance"])
         if "neighbour_covariance" not in model:
             model = model.assign(neighbour_covariance=0.0)
-        if "relative_variance_long" not in model:      # a model table from before 0.9.0
-            model = model.assign(relative_variance_long=np.nan)
         by_class = {name: model[name].reindex(["night", "day"]).to_numpy(dtype=float)
                     for name in ("bias", "bias_se", "independent_variance", "correlated_variance",
-                                 "correlated_variance_long", "relative_variance_long",
-                                 "neighbour_covariance")}
+                                 "correlated_variance_long", "neighbour_covariance")}
         pick = {name: np.where(night, values[0], values[1]) for name, values in by_class.items()}
         # a model table from before 0.9.0 has no correlations: fully shared, as then
         correlation, correlation_long = (
@@ -1856,13 +1840,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
 
         def fill_variance(records):
             independent = per_period(np.where(records, pick["independent_variance"], 0.0))
-            # a long gap's shared error scales with the magnitude of its fills (relative
-            # b), at least that of the short gaps; without a relative b, b_long
-            long_root = np.where(np.isfinite(pick["relative_variance_long"]), np.maximum(
-                np.sqrt(pick["relative_variance_long"]) * magnitude,
-                np.sqrt(pick["correlated_variance"])), np.sqrt(pick["correlated_variance_long"]))
-            root = np.where(records, np.where(long_gap, long_root,
-                                              np.sqrt(pick["correlated_variance"])), 0.0)
+            shared = np.where(long_gap, pick["correlated_variance_long"],
+                              pick["correlated_variance"])
+            root = np.where(records, np.sqrt(shared), 0.0)
             correlated = 0.0
             for in_kind, rho in ((long_gap, correlation_long), (~long_gap, correlation)):
                 # per block (Σ night √b)² + (Σ day √b)² + 2ρ (Σ night √b)(Σ day √b)
@@ -1892,7 +1872,6 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         # a gap of a day or less is one block; a longer one shares its error by 7-day blocks
         block_id = _block_ids(filled, int(_NEIGHBOUR_DAYS * records_per_day))
         donor_noise = _donor_noise(inputs, codes, filled, interval_minutes)
-        magnitude = np.abs(np.nan_to_num(fluxes["nee"].to_numpy(dtype=float)))
         gap_var, bias, bias_se = fill_variance(filled)
         gap_var_day = fill_variance(filled & ~night)[0]
     unknown = pd.Series(np.nan, index=index)
