@@ -821,10 +821,10 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
     latter is independent of the fill, so its variance is subtracted when the
     error model is fitted (:func:`gapfill_error_model`). An artificial gap longer
     than a day is placed with its own length of records clear of real long gaps and
-    of the round's other gaps on each side: stacked against another outage it
-    would be filled from donors twice as far away as the real gap it copies, and
-    (hiding the drivers) read the error of diurnal-course fills 1.2–2 times too
-    large on generated known-truth site-years. Falge et al. (2001)
+    of the round's other gaps on each side, as the real gap it copies lies among
+    measured records: stacked against another outage it would be filled from
+    donors twice as far away (our choice; on the 70 calibration site-years the
+    mean NEE interval narrowed from 34.5 to 33.4 g C m-2 with it). Falge et al. (2001)
     and Moffat et al. (2007) scored gap-filling methods in this way on
     artificial gaps of several lengths.
 
@@ -965,11 +965,14 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
     the shared variance of a gap with n_n night and n_d day records is
     b_n n_n² + b_d n_d² + 2ρ √(b_n b_d) n_n n_d. ρ is the moment estimate of the
     cross products of the two classes' centred error sums over the gaps scored in
-    both (:func:`_day_night_correlation`), within [0, 1]. Taking ρ = 1, as
-    before 0.9.0, read the error of week-long fills 1.2–1.5 times too large:
-    night fill errors follow the respiration level, day fill errors the light
-    response and the weather of the days the donors come from, and on generated
-    known-truth site-years the two were nearly independent.
+    both (:func:`_day_night_correlation`), within [0, 1]. Before 0.9.0 ρ was 1
+    (fully shared): night fill errors follow the respiration level, day fill
+    errors the light response and the weather of the days the donors come
+    from, and in the real outages of 20 generated known-truth site-years the
+    two classes' block errors correlated at −0.34, while the estimate gave
+    0–0.65 (median ~0.2). Estimating ρ narrowed the mean 95 % interval of annual
+    NEE from 33.4 to 31.9, 37.8 to 36.3 and 37.7 to 36.0 g C m-2 on the three
+    generated benchmark sets.
 
     Fills of different gaps: gaps within a week of each other are filled from
     overlapping donors under the same weather, so their errors are correlated.
@@ -1699,7 +1702,11 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         the gap's records in it);
       * for a gap longer than a day, a·n plus b_long·m² per 7-day block of m
         records (since 0.7.0; such gaps are scored on artificial gaps of the
-        site's own long lengths);
+        site's own long lengths, which since 0.9.0 also lack the drivers their
+        real gaps lacked);
+      * the night and the day records of one gap or block share their errors
+        with the correlation ρ the artificial gaps show (since 0.9.0; fully
+        before): b_n n_n² + b_d n_d² + 2ρ √(b_n b_d) n_n n_d;
       * c per pair of filled records of one class in different gaps at most
         7 days apart in the period (since 0.7.0): fills that close draw on overlapping
         donors under the same weather, so their errors covary;
