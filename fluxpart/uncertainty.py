@@ -773,7 +773,8 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
         fill), with the similarity conditions marked True in `hidden` (a boolean
         array like `conditions_missing`, or None) treated as unavailable.
     rounds : int, optional
-        Independent sets of artificial gaps, one fill each; default 6 (our choice; see ``_GAP_ROUNDS``).
+        Independent sets of artificial gaps, one fill each; default 6 (our
+        choice; see ``_GAP_ROUNDS``).
     share : float, optional
         Share of the measured records held out per round; default 0.1 (our choice:
         small enough that donors stay nearly as plentiful as in the real fill).
@@ -812,12 +813,12 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
     artificial gap are scored. With `conditions_missing`, an artificial gap
     copies the driver gaps of its real gap as well: a gap whose drivers were
     recorded is filled from similar conditions, one in an outage of the whole
-    station only from the diurnal course, and the two differ several-fold in
-    error. Gaps longer than a day are rare among a site's
-    gaps (a few in thousands) but carry most of a month's gap-filling error, so
-    where the site has any, `rounds` further rounds hold out only such gaps,
-    their lengths drawn from the site's own gaps longer than a day. The fill of a held-out record differs from its
-    measured value by the fill error minus the measurement's random error; the
+    station only from the diurnal course of other days, which errs more. Gaps
+    longer than a day are rare among a site's gaps (a few in thousands) but
+    carry most of a month's gap-filling error, so where the site has any,
+    `rounds` further rounds hold out only such gaps, their lengths drawn from the
+    site's own gaps longer than a day. The fill of a held-out record differs from
+    its measured value by the fill error minus the measurement's random error; the
     latter is independent of the fill, so its variance is subtracted when the
     error model is fitted (:func:`gapfill_error_model`). An artificial gap longer
     than a day is placed with its own length of records clear of real long gaps and
@@ -1850,14 +1851,14 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             shared = np.where(long_gap, pick["correlated_variance_long"],
                               pick["correlated_variance"])
             root = np.where(records, np.sqrt(shared), 0.0)
-            correlated = 0.0
-            for in_kind, rho in ((long_gap, correlation_long), (~long_gap, correlation)):
-                # per block (Σ night √b)² + (Σ day √b)² + 2ρ (Σ night √b)(Σ day √b)
-                both = np.where(in_kind, root, 0.0)
-                night_part = grouped(block_id, np.where(night, both, 0.0))
-                day_part = grouped(block_id, np.where(night, 0.0, both))
-                correlated = correlated + night_part + day_part \
-                    + rho * (grouped(block_id, both) - night_part - day_part)
+            # per block, N = Σ night √b and D = Σ day √b share N² + D² + 2ρND
+            # = (1 − ρ)(N² + D²) + ρ(N + D)² (ρ is one value per block: a block
+            # lies in one gap, long or not)
+            rho = np.where(long_gap, correlation_long, correlation)
+            apart = root * np.sqrt(1.0 - rho)
+            correlated = grouped(block_id, np.where(night, apart, 0.0)) \
+                + grouped(block_id, np.where(night, 0.0, apart)) \
+                + grouped(block_id, root * np.sqrt(rho))
             neighbours = per_period(np.where(records, pick["neighbour_covariance"] * _neighbour_pairs(
                 records, night, gap_id, codes, records_per_day), 0.0))
             # a fill averages measured records: 2 cov(fill, the period's measured records)

@@ -843,6 +843,15 @@ def _filled_inputs(index, measured, model):
         day_relative_se=np.full(n, np.nan))
 
 
+def _error_model(**columns):
+    """A gap-filling error model (night, day rows) with zero bias and variances, plus
+    `columns` given as [night, day] values."""
+    zeros = {name: [0.0, 0.0] for name in ("bias", "bias_se", "independent_variance",
+                                           "correlated_variance")}
+    return pd.DataFrame({**zeros, **columns},
+                        index=pd.Index(["night", "day"], name="record_class"))
+
+
 def test_period_gapfill_part_counts_neighbour_pairs_and_week_blocks():
     """Var(Σ errors) = Σ_i Σ_j cov(i, j) (elementary statistics): two one-record gaps 3
     days apart add 2c (the pair in both orders), none 10 days apart or across periods;
@@ -852,11 +861,7 @@ def test_period_gapfill_part_counts_neighbour_pairs_and_week_blocks():
 
     index = pd.date_range("2021-06-01", periods=40 * 48, freq="30min")
     n = len(index)
-    model = pd.DataFrame({"bias": [0.0, 0.0], "bias_se": [0.0, 0.0],
-                          "independent_variance": [0.0, 0.0], "correlated_variance": [0.0, 0.0],
-                          "correlated_variance_long": [0.0, 0.0],
-                          "neighbour_covariance": [0.3, 0.3]},
-                         index=pd.Index(["night", "day"], name="record_class"))
+    model = _error_model(correlated_variance_long=[0.0, 0.0], neighbour_covariance=[0.3, 0.3])
     grams = 1800 * 12.011e-6
     measured = np.ones(n, dtype=bool)
     measured[[100, 100 + 3 * 48, 100 + 13 * 48]] = False   # 0 and 3 days apart; 10 days on
@@ -887,11 +892,7 @@ def test_period_gapfill_part_shares_night_and_day_errors_by_their_correlation():
     measured = np.ones(n, dtype=bool)
     measured[480:480 + 336] = False
     night = (np.arange(n) % 48) < 24
-    model = pd.DataFrame({"bias": [0.0, 0.0], "bias_se": [0.0, 0.0],
-                          "independent_variance": [0.0, 0.0], "correlated_variance": [0.0, 0.0],
-                          "correlated_variance_long": [0.01, 0.04],
-                          "neighbour_covariance": [0.0, 0.0]},
-                         index=pd.Index(["night", "day"], name="record_class"))
+    model = _error_model(correlated_variance_long=[0.01, 0.04], neighbour_covariance=[0.0, 0.0])
     grams = 1800 * 12.011e-6
     for rho in (0.0, 0.5, 1.0):
         inputs = replace(_filled_inputs(index, measured, model.assign(
@@ -920,9 +921,7 @@ def test_fill_covaries_with_the_measured_records_it_averages():
     measured = np.ones(n, dtype=bool)
     measured[[24, 20 * 48 + 24, 30 * 48]] = False
     keys = (np.arange(n) >= 20 * 48).astype(int)          # days 0-19 and 20-39
-    model = pd.DataFrame({"bias": [0.0, 0.0], "bias_se": [0.0, 0.0],
-                          "independent_variance": [0.0, 0.0], "correlated_variance": [0.0, 0.0]},
-                         index=pd.Index(["night", "day"], name="record_class"))
+    model = _error_model()
     inputs = replace(_filled_inputs(index, measured, model),
                      fill_window_days=np.where(measured, np.nan, 14.0),
                      fill_noise_sigma=np.full(n, 2.0))
