@@ -154,6 +154,16 @@ class Config:
         temperature, while some ecosystems' respiration follows air temperature,
         and at night NEE is Reco, so the night data decide (on 8 generated
         site-years it picked the planted temperature every time).
+    respiration_form : str
+        Form of the nighttime method's central Reco: ``"average"`` (default, since
+        0.10.0) weights the Lloyd–Taylor fit and a refit with a constant Q10 by the
+        probability the measured night NEE gives each (their BIC weight; Bayesian
+        model averaging, Hoeting et al. 1999 (m); Burnham & Anderson 2002), so a
+        respiration that keeps one Q10 over a wide range of temperature is not
+        extrapolated low into the warm season; ``"lloyd_taylor"``: the published
+        form alone. Either way the spread of the two forms is a stated part of the
+        uncertainty; the weight is in ``provenance["respiration_form"]``. See
+        :func:`fluxpart.partition.respiration_form.average_forms`.
     e0_window_days : float
         Length of the short windows in which E0 is fitted [days]; 15 days,
         Reichstein et al. (2005) (m).
@@ -367,6 +377,7 @@ class Config:
     tair_tolerance: float = 2.5
     vpd_tolerance: float = 5.0
     respiration_driver: str = "auto"
+    respiration_form: str = "average"
     e0_window_days: float = 15.0
     e0_window_step_days: float = 5.0
     e0_min_points: int = 6
@@ -462,6 +473,7 @@ def suggest_key(key: str, valid, what: str = "settings") -> str:
 
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
+            "respiration_form": ("average", "lloyd_taylor"),
             "e0_method": ("joint", "best_windows"),
             "gapfill_donors": ("separate_day_night", "similar_conditions_only"),
             "gapfill_rg_window": ("centred", "fixed"),

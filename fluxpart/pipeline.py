@@ -22,6 +22,7 @@ settings to the stage functions and assembles their outputs.
 
 from __future__ import annotations
 
+import dataclasses
 import datetime
 import logging
 import warnings as _warnings
@@ -686,6 +687,12 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         if name != "ustar_seasonal":     # a run stage_count cannot foresee
             step(f"gap filling and partitioning ({name})")
 
+    # the nighttime method's central Reco averaged over the two respiration forms; the
+    # same per-record shift in every u* run keeps their spread the threshold's alone
+    form = _respiration_form(frame, filled_drivers, outcomes["central"], is_night, temperature,
+                             config)
+    outcomes = {name: (*outcome[:3], _shifted(outcome[3], form.shift), outcome[4])
+                for name, outcome in outcomes.items()}
     too_calm, nee_measured, filled, night, day = outcomes["central"]
     fell_back = day.parameters["e0_source"] == "fallback"
     if config.e0_fallback is None and fell_back.any():
@@ -746,7 +753,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     timeseries = timeseries.assign(nee_random_error=sigma)
     daily, monthly, annual, gapfill_model = _uncertainty(
         daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night, night, day,
-        temperature, interval, config, year_keys, night_fits, error_model)
+        temperature, interval, config, year_keys, night_fits, error_model, form)
     parameters["gapfill_error_model"] = gapfill_model
     annual = annual.join(uncertainty.carbon_accounting_units(annual))
     audit_table = audit.audit_trail(timeseries, year_keys=year_keys)
@@ -785,14 +792,40 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                     "preflight": [str(f) for f in findings],
                     "respiration_driver": ({"setting": temperature} if choice is None
                                            else choice.to_dict()),
+                    "respiration_form": form.to_dict(),
                     "uncertainty": {"confidence": uncertainty.CONFIDENCE,
                                     "not_quantified": list(uncertainty.NOT_QUANTIFIED),
                                     "checked": uncertainty.CALIBRATION_CHECK}})
 
 
+def _respiration_form(frame, filled_drivers, central, is_night, temperature, config):
+    """Both respiration forms' nighttime Reco on the central run, averaged as configured."""
+    _, nee_measured, filled, night, _ = central
+    try:
+        exponential = respiration_form.exponential_reco(
+            frame.index, nee_measured, filled["value"].to_numpy(dtype=float),
+            frame[temperature].to_numpy(dtype=float),
+            filled_drivers[f"{temperature}_filled"].to_numpy(dtype=float), is_night,
+            respiration_driver=temperature,
+            **_nighttime_settings(config, frame["rg"].to_numpy(dtype=float)))
+    except FluxpartError:
+        exponential = None
+    weight = 0.0 if exponential is None else uncertainty.driver_weight(
+        nee_measured, is_night, night.reco, exponential)
+    return respiration_form.average_forms(night.reco, exponential, weight,
+                                          config.respiration_form)
+
+
+def _shifted(night, shift):
+    """A nighttime result with `shift` [µmol m-2 s-1] added to its Reco and GPP."""
+    if not np.any(shift):
+        return night
+    return dataclasses.replace(night, reco=night.reco + shift, gpp=night.gpp + shift)
+
+
 def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night,
                  night, day, temperature, interval, config, year_keys, night_fits,
-                 error_model=None):
+                 error_model=None, form=None):
     """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals.
 
     `night_fits`: nighttime fits on the central measured NEE and the input's temperature
@@ -840,7 +873,6 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         else:
             other_reco = refit(lambda *args, **kwargs: nighttime.partition_nighttime(
                 *args, **kwargs).reco, other)
-    form_reco = refit(respiration_form.exponential_reco, temperature)
     inputs = uncertainty.record_inputs(
         index, runs["central"], runs if len(runs) > 1 else {}, measured, noise, is_night,
         timeseries[f"{temperature}_filled"].to_numpy(dtype=float), night, day.parameters,
@@ -848,7 +880,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         nee_measured=nee_measured,
         fill_window_days=timeseries["nee_fill_window_days"].to_numpy(dtype=float),
         fill_noise_sigma=None if error_model is None else error_model.predict(
-            timeseries["nee_filled"].to_numpy(dtype=float)), other_form_reco=form_reco)
+            timeseries["nee_filled"].to_numpy(dtype=float)), respiration_form=form)
     percentiles = config.ustar_scenarios
     tables = []
     for table, keys in ((daily, index.normalize()),

@@ -1511,6 +1511,11 @@ class UncertaintyInputs:
     form_weight : float
         Probability that the exponential form describes the night data better
         (:func:`driver_weight`) [1].
+    form_spread : float
+        Root second moment of the form's error about the central estimate per
+        |ΣΔ| (:attr:`fluxpart.partition.respiration_form.FormAverage.spread_factor`):
+        √(w (1 − w)) when the central Reco is the forms' average, √w when it is
+        Lloyd–Taylor's [1].
     """
 
     measured: np.ndarray
@@ -1534,6 +1539,7 @@ class UncertaintyInputs:
     fill_noise_sigma: np.ndarray | None = None
     form_delta: np.ndarray | None = None
     form_weight: float = 0.0
+    form_spread: float = 0.0
 
 
 def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
@@ -1589,7 +1595,7 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
                   temperature, nighttime_result, daytime_parameters, gapfill_model, *,
                   rref_window_days=4.0, other_driver_reco=None,
                   nee_measured=None, fill_window_days=None,
-                  fill_noise_sigma=None, other_form_reco=None) -> UncertaintyInputs:
+                  fill_noise_sigma=None, respiration_form=None) -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -1621,11 +1627,12 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         Nighttime Reco computed with the other respiration temperature [µmol m-2 s-1].
     nee_measured : array_like, optional
         Measured NEE [µmol m-2 s-1], for :func:`driver_weight` (needed with
-        `other_driver_reco` or `other_form_reco`).
+        `other_driver_reco`).
     fill_window_days, fill_noise_sigma : array_like, optional
         See :class:`UncertaintyInputs`.
-    other_form_reco : array_like, optional
-        Nighttime Reco with the exponential (constant-Q10) form [µmol m-2 s-1].
+    respiration_form : FormAverage, optional
+        Both respiration forms' nighttime Reco, the weight and the share applied
+        (:func:`fluxpart.partition.respiration_form.average_forms`).
 
     Returns
     -------
@@ -1654,10 +1661,10 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         day_interval=day_interval, day_interpolation_sd=day_interpolation,
         fill_window_days=None if fill_window_days is None else np.asarray(fill_window_days, float),
         fill_noise_sigma=None if fill_noise_sigma is None else np.asarray(fill_noise_sigma, float),
-        form_delta=None if other_form_reco is None else
-        np.asarray(other_form_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
-        form_weight=0.0 if other_form_reco is None else driver_weight(
-            nee_measured, is_night, fluxes["reco_nighttime"].to_numpy(float), other_form_reco),
+        form_delta=None if respiration_form is None or respiration_form.exponential is None
+        else respiration_form.exponential - respiration_form.lloyd_taylor,
+        form_weight=0.0 if respiration_form is None else respiration_form.weight,
+        form_spread=0.0 if respiration_form is None else respiration_form.spread_factor,
         driver_delta=None if other_driver_reco is None else
         np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
         driver_weight=0.0 if other_driver_reco is None else driver_weight(
@@ -1768,8 +1775,11 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       choice moves both alike and the method difference cannot reveal it; the
       part is added to all four partitioned fluxes (GPP moves with Reco, NEE
       being fixed by the data).
-    - respiration form (structural, since 0.7.0): √w · |Σ(Reco(constant Q10) −
-      Reco)| of the nighttime method refitted with the exponential form
+    - respiration form (structural, since 0.7.0): s · |Σ(Reco(constant Q10) −
+      Reco(Lloyd–Taylor))| of the nighttime method refitted with the exponential
+      form, s = √(w (1 − w)) about the two forms' weighted average (the central
+      estimate since 0.10.0) or √w about Lloyd–Taylor's
+      (``respiration_form = "lloyd_taylor"``)
       (:func:`fluxpart.partition.respiration_form.exponential_reco`), w the
       weight the night data give it (:func:`driver_weight`). Both methods use
       Lloyd–Taylor, so a respiration that keeps one Q10 over a wide range
@@ -1964,7 +1974,7 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     out["reco_uncertainty_temperature_driver"] = driver
     if inputs.form_delta is not None:
         form = per_period(np.nan_to_num(inputs.form_delta)).abs() * factor \
-            * np.sqrt(inputs.form_weight)
+            * inputs.form_spread
     else:
         form = pd.Series(np.nan, index=index)
     out["reco_uncertainty_respiration_form"] = form
