@@ -215,12 +215,22 @@ UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
                                             "weight the night data give the other temperature "
                                             "(BIC); in the totals of all partitioned fluxes "
                                             "(NaN without soil temperature)"),
-    "reco_uncertainty_respiration_form": (CARBON, "1 sigma: structural error of Reco and GPP "
-                                          "(carbon) from the form of the respiration response: "
-                                          "|nighttime Reco with a constant Q10 - nighttime Reco "
-                                          "(Lloyd-Taylor)| x sqrt(w), w the weight the night "
-                                          "data give the constant Q10 (BIC); in the totals of "
-                                          "all partitioned fluxes (NaN where the Q10 fit fails)"),
+    "reco_uncertainty_respiration_form": (CARBON, "1 sigma: structural error of the nighttime "
+                                          "method's Reco and GPP (carbon) from the form of the "
+                                          "respiration response: |nighttime Reco with a constant "
+                                          "Q10 - nighttime Reco with Lloyd-Taylor| x "
+                                          "sqrt(w (1 - w)) about their w-weighted average "
+                                          "(respiration_form = average), x sqrt(w) about "
+                                          "Lloyd-Taylor (lloyd_taylor), w the weight the night "
+                                          "data give the constant Q10 (BIC); in the nighttime "
+                                          "totals (NaN where the Q10 fit fails)"),
+    "reco_daytime_uncertainty_respiration_form": (CARBON, "1 sigma: structural error of the "
+                                                  "daytime method's Reco and GPP (carbon) from "
+                                                  "the form of the respiration response, which "
+                                                  "stays Lloyd-Taylor: |nighttime Reco with a "
+                                                  "constant Q10 - with Lloyd-Taylor| x sqrt(w); "
+                                                  "in the daytime totals (NaN where the Q10 fit "
+                                                  "fails)"),
     "reco_uncertainty_partitioning": (CARBON, "1 sigma: structural error of Reco (carbon): "
                                       "the part of d = daytime - nighttime the methods' "
                                       "parameter parts do not explain, sqrt(max(d^2 - "

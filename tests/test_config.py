@@ -115,6 +115,8 @@ def test_from_toml_missing_and_invalid(tmp_path):
     ({"seed": True}, r"seed = true is not allowed"),
     ({"respiration_driver": "soil"},
      r'respiration_driver = "soil" is not allowed: expected one of "tair", "tsoil" or "auto"'),
+    ({"respiration_form": "q10"},
+     r'respiration_form = "q10" is not allowed: expected one of "average" or "lloyd_taylor"'),
     ({"rg_tolerance": 0.0}, r"rg_tolerance = 0.0 is out of range.*above 0 and at most 200"),
     ({"tair_tolerance": "2.5"}, r'tair_tolerance = "2.5" is text: .*written without quotes'),
     ({"ustar_threshold": -0.1}, r"ustar_threshold = -0.1 is out of range.*from 0 to 2 m s-1"),

@@ -177,6 +177,27 @@ def test_soil_temperature_as_respiration_driver():
         process(frame.drop(columns="tsoil"), demo.site(), config)
 
 
+def test_respiration_form_average_shifts_reco_and_gpp_alike_and_is_recorded(demo_run):
+    """The default central nighttime Reco is Lloyd-Taylor's plus the weight w times the
+    constant-Q10 refit's difference; GPP = Reco - NEE moves with it (NEE unchanged), and
+    "lloyd_taylor" gives the published form alone. The weight is a probability."""
+    frame, _, averaged = demo_run
+    config = Config(respiration_form="lloyd_taylor")
+    published = process(frame, demo.site(), config)
+    form = averaged.provenance["respiration_form"]
+    assert form["setting"] == "average" and form["fitted"]
+    assert 0.0 <= form["exponential_weight"] <= 1.0
+    assert form["share_applied"] == form["exponential_weight"]
+    assert published.provenance["respiration_form"]["share_applied"] == 0.0
+    a, p = averaged.timeseries, published.timeseries
+    np.testing.assert_array_equal(a["nee_filled"], p["nee_filled"])
+    shift = (a["reco_nighttime"] - p["reco_nighttime"]).to_numpy()
+    np.testing.assert_allclose(a["gpp_nighttime"] - p["gpp_nighttime"], shift, atol=1e-12)
+    np.testing.assert_array_equal(a["reco_daytime"], p["reco_daytime"])
+    if form["exponential_weight"] > 1e-6:
+        assert np.abs(shift).max() > 0
+
+
 def test_bad_frames_are_rejected_with_the_column_or_row_named():
     """Missing columns, irregular stamps and time zones are named in the error."""
     frame, _ = demo.site_year(seed=0)

@@ -5,12 +5,14 @@ independently of fluxpart); the exponential Q10 form R = Rref Q10^((T - Tref)/10
 textbook van 't Hoff form (common practice). Data below are invented known-truth series.
 """
 
+import dataclasses
+
 import numpy as np
 import pandas as pd
 import pytest
 
 from fluxpart.partition.nighttime import partition_nighttime
-from fluxpart.partition.respiration_form import exponential_reco
+from fluxpart.partition.respiration_form import average_forms, exponential_reco
 from fluxpart.responses import exponential_equivalent_temperature, lloyd_taylor
 from fluxpart.uncertainty import UncertaintyInputs, driver_weight, period_uncertainty
 
@@ -59,8 +61,9 @@ def test_exponential_fit_recovers_a_constant_q10_that_lloyd_taylor_misses():
     assert driver_weight(measured, night, central.reco, other) > 0.9
 
 
-def test_form_part_is_weighted_difference_in_every_partitioned_total():
-    """sqrt(w) |Σ ΔReco| (as for the temperature driver), in all four totals."""
+def test_form_part_is_the_spread_times_the_difference_in_every_partitioned_total():
+    """s |Σ ΔReco| with s = sqrt(w) about Lloyd-Taylor (as for the temperature driver),
+    in all four totals."""
     index = pd.date_range("2021-06-01", periods=2 * 48, freq="30min")
     n = len(index)
     zeros = np.zeros(n)
@@ -71,9 +74,51 @@ def test_form_part_is_weighted_difference_in_every_partitioned_total():
         fluxes=fluxes, runs={}, gapfill_model=None, e0_delta=zeros,
         night_window=np.zeros(n, dtype=int), night_relative_se=np.full(n, np.nan),
         day_window=np.zeros(n, dtype=int), day_relative_se=np.full(n, np.nan),
-        form_delta=np.full(n, 0.5), form_weight=0.36)
+        form_delta=np.full(n, 0.5), form_weight=0.36, form_spread=0.6)
     out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
     expected = 0.6 * 0.5 * n * 1800 * 12.011e-6
     assert out["reco_uncertainty_respiration_form"] == pytest.approx(expected)
+    # the daytime method keeps Lloyd-Taylor: sqrt(w) = 0.6 about it, whatever the nighttime share
+    assert out["reco_daytime_uncertainty_respiration_form"] == pytest.approx(expected)
     for flux in ("gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
         assert out[f"{flux}_uncertainty_total"] >= expected * (1 - 1e-12)
+    averaged = period_uncertainty(dataclasses.replace(inputs, form_spread=0.48),
+                                  np.zeros(n, dtype=int), 30).iloc[0]   # sqrt(0.36 x 0.64)
+    assert averaged["reco_uncertainty_respiration_form"] == pytest.approx(0.8 * expected)
+    assert averaged["reco_daytime_uncertainty_respiration_form"] == pytest.approx(expected)
+
+
+def test_model_average_moves_reco_to_a_constant_q10_truth_and_states_the_bma_spread():
+    """Known truth (invented): Q10 = 3. The BIC-weighted average of the two forms is
+    closer to the true annual Reco than Lloyd-Taylor alone, and its stated spread is the
+    between-model standard deviation of Bayesian model averaging,
+    sqrt(sum_k w_k (R_k - R_avg)^2) (Hoeting et al. 1999, eq. for the posterior variance
+    (m)), written out here; "lloyd_taylor" keeps the Lloyd-Taylor Reco with spread
+    sqrt(w) |ΔR|, the root mean square error of choosing it."""
+    rng = np.random.default_rng(3)
+    index, measured, filled, temperature, night, reco = _q10_year(rng)
+    central = partition_nighttime(index, measured, filled, temperature, temperature, night)
+    other = exponential_reco(index, measured, filled, temperature, temperature, night)
+    w = driver_weight(measured, night, central.reco, other)
+    form = average_forms(central.reco, other, w, "average")
+    averaged = central.reco + form.shift
+    assert abs(averaged.sum() / reco.sum() - 1) < abs(central.reco.sum() / reco.sum() - 1)
+    totals = np.array([central.reco.sum(), other.sum()])
+    weights = np.array([1.0 - w, w])
+    mean = weights @ totals
+    assert averaged.sum() == pytest.approx(mean, rel=1e-9)
+    between = np.sqrt(weights @ (totals - mean) ** 2)
+    assert form.spread_factor * abs(totals[1] - totals[0]) == pytest.approx(between, rel=1e-9)
+    kept = average_forms(central.reco, other, w, "lloyd_taylor")
+    assert not kept.shift.any()
+    assert kept.spread_factor == pytest.approx(np.sqrt(w))
+
+
+def test_model_average_without_an_exponential_fit_is_lloyd_taylor():
+    """A failed exponential refit leaves the Lloyd-Taylor Reco and no form part."""
+    reco = np.array([1.0, 2.0, 3.0])
+    form = average_forms(reco, None, 0.8)
+    assert form.weight == 0.0 and form.share == 0.0 and form.spread_factor == 0.0
+    np.testing.assert_array_equal(form.shift, np.zeros(3))
+    with pytest.raises(ValueError, match="respiration_form"):
+        average_forms(reco, reco, 0.5, "q10")
