@@ -873,6 +873,9 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         else:
             other_reco = refit(lambda *args, **kwargs: nighttime.partition_nighttime(
                 *args, **kwargs).reco, other)
+    if other_reco is not None and form is not None:
+        # compared with the central Reco, which carries the respiration form's shift
+        other_reco = other_reco + form.shift
     inputs = uncertainty.record_inputs(
         index, runs["central"], runs if len(runs) > 1 else {}, measured, noise, is_night,
         timeseries[f"{temperature}_filled"].to_numpy(dtype=float), night, day.parameters,
