@@ -312,9 +312,9 @@ def _reading_notes(combined_used: bool) -> str:
         "random error, gap filling with its bias on artificial gaps and the correlation of "
         "fills within a week and with the records they average, the u* threshold, fitted "
         "parameters (also Rref between its windows), the choice of partitioning method, of "
-        "respiration temperature and of respiration form (Lloyd–Taylor or a constant Q10; the "
-        "nighttime Reco is their average weighted by how well each fits the night data, the "
-        "weight in the manifest's provenance.respiration_form), as far as each applies to the "
+        "respiration temperature and of respiration form (Lloyd–Taylor or a constant Q10; by "
+        "default the nighttime Reco is their average weighted by how well each fits the night "
+        "data, the weight in the manifest's provenance.respiration_form), as far as each applies to the "
         "flux); systematic errors of the measurement itself (energy-balance closure, "
         "advection, storage, footprint) are not included (the manifest lists every part "
         "left out).",

@@ -1662,7 +1662,7 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         fill_window_days=None if fill_window_days is None else np.asarray(fill_window_days, float),
         fill_noise_sigma=None if fill_noise_sigma is None else np.asarray(fill_noise_sigma, float),
         form_delta=None if respiration_form is None or respiration_form.exponential is None
-        else respiration_form.exponential - respiration_form.lloyd_taylor,
+        else respiration_form.difference,
         form_weight=0.0 if respiration_form is None else respiration_form.weight,
         form_spread=0.0 if respiration_form is None else respiration_form.spread_factor,
         driver_delta=None if other_driver_reco is None else
