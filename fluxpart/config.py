@@ -79,6 +79,21 @@ class Config:
         of four noisy seasonal values reads high where every season is well resolved
         (up to +21 % on generated site-years); the median assumes one threshold per
         year, which is what the pipeline applies.
+    ustar_distinct_seasons : str
+        What a year whose seasons' u* thresholds clearly differ (two seasons'
+        bootstrap 5–95 % ranges apart and the higher more than 20 % above the year's,
+        :mod:`fluxpart.ustar_seasonal`) is filtered with. ``"own_threshold"``
+        (default since 0.11.0): each season at the larger of its own threshold and
+        the year's, the run with the year's threshold on every night joining the u*
+        part of the uncertainty. ``"uncertainty_only"`` (0.8.1–0.10.0): the year's
+        threshold on every night, the seasonal run joining the u* part. Why: nights
+        of a season whose canopy needs more turbulence (a deciduous forest in leaf)
+        that lie between the two thresholds lost flux, and kept as measured they
+        also serve as donors of the night gaps. Thresholds per season follow Papale
+        et al. (2006) and Barr et al. (2013) (m); the floor at the year's threshold
+        is our choice (a threshold read too high costs data, one read too low biases
+        the budget). Figures: DEVELOPERS.md, 0.11.0; no generated site-year with one
+        planted threshold qualifies, so nothing changes there.
     ustar_plateau_reference : float
         Moving point test: a u* class is compared with the mean night NEE of the
         classes above it within the top share of the u* classes given here [1], in
@@ -364,6 +379,7 @@ class Config:
     ustar_correlation_limit: float = 0.4
     ustar_min_resolution: float = 4.0
     ustar_annual: str = "median"
+    ustar_distinct_seasons: str = "own_threshold"
     ustar_plateau_reference: float = 0.25
     ustar_min_threshold: float | None = None
     ustar_bootstrap_draws: int = 100
@@ -480,6 +496,7 @@ _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "daytime_weighting": ("random_error", "none"),
             "ustar_method": ("moving_point", "change_point", "fixed"),
             "ustar_annual": ("median", "maximum"),
+            "ustar_distinct_seasons": ("own_threshold", "uncertainty_only"),
             "clock_check": ("refuse", "warn", "off")}
 
 

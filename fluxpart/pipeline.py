@@ -644,16 +644,15 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         interpolation_hours=config.gapfill_interpolation_hours)
     conditions = gapfill.driver_conditions(filled_drivers)
 
-    runs = {"central": _per_record(frame.index, central)}
+    year_runs = {"central": _per_record(frame.index, central),
+                 **{name: _per_record(frame.index, values)
+                    for name, values in scenario_thresholds.items()}}
+    contrast = ustar_seasonal.seasonal_contrast(ustar_table)
+    runs = ustar_seasonal.threshold_runs(frame.index, site.latitude, ustar_table, year_runs,
+                                         contrast, config.ustar_distinct_seasons)
+    warnings.extend(ustar_seasonal.contrast_warnings(contrast, config.ustar_distinct_seasons))
     temperature, choice = _chosen_temperature(temperature, frame.index, screened, is_night,
                                               runs["central"], config)
-    runs.update({name: _per_record(frame.index, values)
-                 for name, values in scenario_thresholds.items()})
-    contrast = ustar_seasonal.seasonal_contrast(ustar_table)
-    if not contrast.empty:
-        runs["ustar_seasonal"] = ustar_seasonal.seasonal_thresholds(
-            frame.index, site.latitude, ustar_table, runs["central"], contrast["year"])
-        warnings.extend(ustar_seasonal.contrast_warnings(contrast))
     arguments = (frame, screened, filled_drivers, conditions, is_night)
     # one after another: in two threads the runs cost ~12 % more CPU and ~16 MB more
     # memory for no gain in wall time (GIL-bound); sites run in parallel in `batch`
@@ -684,7 +683,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
             # scenario is left out of the u* part (computed from the runs that remain)
             warnings.append(f"u* scenario {name} not computed ({error}); the u* part of the "
                             "uncertainty uses the remaining runs")
-        if name != "ustar_seasonal":     # a run stage_count cannot foresee
+        if name not in ("ustar_seasonal", "ustar_year"):     # runs stage_count cannot foresee
             step(f"gap filling and partitioning ({name})")
 
     # the nighttime method's central Reco averaged over the two respiration forms; the
@@ -735,7 +734,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         nee_measured, frame["ustar"].to_numpy(dtype=float), runs["central"],
         is_night, day.reco - day.gpp, year_keys, interval)))
     step("budgets")
-    annual = annual.assign(ustar_threshold=timeseries["ustar_threshold"].groupby(year_keys)
+    # the year's detected threshold (seasons filtered higher are in the time series)
+    annual = annual.assign(ustar_threshold=pd.Series(year_runs["central"]).groupby(year_keys)
                            .max().reindex(annual.index).to_numpy())
     annual = _scenario_spread(annual, outcomes, frame.index, interval, year_keys)
 

@@ -370,7 +370,12 @@ _BUDGET_PATTERNS = [
                 f"percentile {m[2][1:]}")),
     (rf"({_FLUX_PATTERN})_ustar_seasonal",
      lambda m: (CARBON, f"{m[1]} summed ({_CARBON_SUM}) with each season at its own u* "
-                "threshold (run only where the seasons' thresholds clearly differ)")),
+                "threshold where higher than the year's (run only where the seasons' "
+                "thresholds clearly differ and ustar_distinct_seasons = uncertainty_only)")),
+    (rf"({_FLUX_PATTERN})_ustar_year",
+     lambda m: (CARBON, f"{m[1]} summed ({_CARBON_SUM}) with the year's u* threshold on every "
+                "night (run only where the seasons' thresholds clearly differ and each season "
+                "was filtered at its own)")),
     (rf"({_FLUX_PATTERN})_ustar_spread",
      lambda m: (CARBON, f"{m[1]} ({_CARBON_SUM}): max - min over the u* threshold scenarios")),
     (rf"({_FLUX_PATTERN})_ci95_(low|high)",

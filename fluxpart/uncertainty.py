@@ -1438,11 +1438,11 @@ def ustar_sigma(sums: pd.DataFrame, percentiles) -> pd.Series:
         if the sum is normal in the threshold's distribution; for 5/50/95 it is
         the 5–95 range over 3.29. The range over all runs is used because the
         sum need not be monotonic in the threshold. NaN without scenarios. With
-        a column ``ustar_seasonal`` (each season at its own threshold, run where
-        the seasons' thresholds clearly differ, :mod:`fluxpart.ustar_seasonal`)
-        its difference from ``central`` is added in quadrature: it estimates the
-        error of applying one threshold to the whole year, a systematic part the
-        bootstrap of the year's threshold does not see (counted at its full size,
+        a column ``ustar_year`` or ``ustar_seasonal`` (the other way of applying
+        thresholds in a year whose seasons clearly differ: the year's on every
+        night, or each season at its own; :mod:`fluxpart.ustar_seasonal`) its
+        difference from ``central`` is added in quadrature: which way is right is
+        a systematic part the bootstrap does not see (counted at its full size,
         as the fill bias is).
     """
     z = {"central": 0.0}
@@ -1456,10 +1456,11 @@ def ustar_sigma(sums: pd.DataFrame, percentiles) -> pd.Series:
         # the range over the runs a period has (NaN-skipping, as DataFrame.max and min)
         spread = np.fmax.reduce(table, axis=1) - np.fmin.reduce(table, axis=1)
         sigma = pd.Series(spread / (max(spans) - min(spans)), index=sums.index)
-    if "ustar_seasonal" in sums.columns and "central" in sums.columns:
-        shift = (sums["ustar_seasonal"] - sums["central"]).abs()
-        sigma = np.sqrt(sigma.fillna(0.0) ** 2 + shift**2).where(
-            sigma.notna() | shift.notna())
+    for alternative in ("ustar_year", "ustar_seasonal"):
+        if alternative in sums.columns and "central" in sums.columns:
+            shift = (sums[alternative] - sums["central"]).abs()
+            sigma = np.sqrt(sigma.fillna(0.0) ** 2 + shift**2).where(
+                sigma.notna() | shift.notna())
     return sigma
 
 

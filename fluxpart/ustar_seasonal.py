@@ -1,25 +1,33 @@
-"""Seasons whose u* threshold clearly differs from the one applied to the whole year.
+"""Seasons whose u* threshold clearly differs from the one of the whole year.
 
-The pipeline applies one u* threshold per calendar year (the median of the
-year's temperature classes by default, see :mod:`fluxpart.ustar`). Where the
-canopy's coupling to the air above changes through the year (leaf-out of a
-deciduous forest, a growing crop), a season can need a clearly higher threshold:
-its nights between the year's threshold and its own lost flux, yet are kept as
+The detector gives one u* threshold per calendar year (the median of the year's
+temperature classes by default, see :mod:`fluxpart.ustar`). Where the canopy's
+coupling to the air above changes through the year (leaf-out of a deciduous
+forest, a growing crop), a season can need a clearly higher threshold: its
+nights between the year's threshold and its own lost flux, yet would be kept as
 measured and serve as donors of the night gaps, and annual NEE comes out too
-negative. The bootstrap of the year's threshold does not see this, so the stated
-interval would not either.
+negative. The bootstrap of the year's threshold does not see this.
 
-This module finds such seasons from the u* table and gives the per-record
-thresholds of the *seasonal scenario*: each season of such a year at its own
-detected threshold (other years and seasons without a threshold at the year's).
-The pipeline runs gap filling and both partitionings once more with them; the
-difference of the sums from the central run is added to the u* part of the
-uncertainty (:func:`fluxpart.uncertainty.ustar_sigma`) and the run warns. No
-central number changes.
+This module finds such years from the u* table and gives the per-record
+thresholds of every run (:func:`threshold_runs`). In such a year each season
+takes the larger of its own detected threshold and the year's (a season is
+never filtered below the year's threshold: a threshold read too high costs
+data, one read too low biases the budget, the asymmetry behind the annual
+maximum of Papale et al. 2006); the u* scenarios take each season's own
+bootstrap percentile in the same way. With ``ustar_distinct_seasons =
+"own_threshold"`` (default since 0.11.0) these are the central run and its
+scenarios, and a run with the year's threshold on every night (``ustar_year``)
+is the alternative; with ``"uncertainty_only"`` (0.8.1–0.10.0) the central run
+keeps the year's threshold and the seasonal run (``ustar_seasonal``) is the
+alternative. Either way the alternative's difference from the central sums is
+added to the u* part of the uncertainty
+(:func:`fluxpart.uncertainty.ustar_sigma`), and the run warns.
 
 A year counts when two of its seasons' bootstrap 5–95 % ranges do not overlap
 (the higher season's 5th percentile above the lower one's 95th) and the higher
-season's threshold exceeds the year's by more than :data:`SEASONAL_MARGIN`.
+season's threshold exceeds the year's by more than :data:`SEASONAL_MARGIN`. On
+168 generated site-years with one planted threshold no year qualified (the
+largest ratio of one season's 5th percentile to another's 95th was 1.01).
 
 References
 ----------
@@ -27,6 +35,10 @@ Papale, D. et al. (2006). Towards a standardized processing of Net Ecosystem
 Exchange measured with eddy covariance technique: algorithms and uncertainty
 estimation. Biogeosciences 3:571–583 (thresholds per season; the year's
 threshold as the largest seasonal one) (m).
+
+Barr, A. G. et al. (2013). Use of change-point detection for friction-velocity
+threshold evaluation in eddy-covariance studies. Agricultural and Forest
+Meteorology 171–172:31–45 (thresholds that vary with season and canopy) (m).
 """
 
 from __future__ import annotations
@@ -34,14 +46,19 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from .errors import ConfigError
 from .ustar import SEASONS, assign_seasons
 
-__all__ = ["SEASONAL_MARGIN", "contrast_warnings", "seasonal_contrast", "seasonal_thresholds"]
+__all__ = ["DISTINCT_SEASON_RULES", "SEASONAL_MARGIN", "contrast_warnings", "seasonal_contrast",
+           "seasonal_thresholds", "threshold_runs"]
 
 #: A season's threshold counts as clearly above the year's when it exceeds it by more
 #: than this factor [1]: 1.2, the ±20 % within which the detector is expected to
 #: recover a threshold (the calibration target of the u* detector); our choice.
 SEASONAL_MARGIN = 1.2
+
+#: Values of ``ustar_distinct_seasons``: which run is central in a year whose seasons differ.
+DISTINCT_SEASON_RULES = ("own_threshold", "uncertainty_only")
 
 
 def seasonal_contrast(table: pd.DataFrame, margin: float = SEASONAL_MARGIN) -> pd.DataFrame:
@@ -87,8 +104,8 @@ def seasonal_contrast(table: pd.DataFrame, margin: float = SEASONAL_MARGIN) -> p
 
 
 def seasonal_thresholds(index, latitude, table: pd.DataFrame, central: np.ndarray,
-                        years) -> np.ndarray:
-    """Per-record thresholds of the seasonal scenario [m s-1].
+                        years, column: str = "threshold") -> np.ndarray:
+    """Per-record thresholds with each season of `years` at its own [m s-1].
 
     Parameters
     ----------
@@ -97,38 +114,97 @@ def seasonal_thresholds(index, latitude, table: pd.DataFrame, central: np.ndarra
     latitude : float
         Site latitude [degrees] (the hemisphere names the seasons).
     table : pandas.DataFrame
-        The u* table (``year``, ``period``, ``threshold``).
+        The u* table (``year``, ``period`` and `column`).
     central : numpy.ndarray
-        The central run's threshold per record [m s-1].
+        The year's threshold per record [m s-1] (of the same run: the detected
+        value or a bootstrap percentile).
     years : iterable of int
         The years whose seasons take their own thresholds
         (``seasonal_contrast(table)["year"]``).
+    column : str, optional
+        The table's column of the seasons' thresholds: ``"threshold"`` (detected,
+        default) or ``"threshold_pXX"`` (a bootstrap percentile).
 
     Returns
     -------
     numpy.ndarray
-        Each record of those years at its season's own detected threshold where
-        the season has one; every other record at `central`.
+        Each record of those years at the larger of its season's own threshold
+        and `central` where the season has one; every other record at `central`.
     """
     seasons = assign_seasons(index, latitude)
     own = table[table["period"].isin(SEASONS) & table["year"].isin(list(years))]
-    lookup = pd.Series(own["threshold"].astype(float).to_numpy(),
+    lookup = pd.Series(own[column].astype(float).to_numpy(),
                        index=pd.MultiIndex.from_arrays([own["year"].astype(np.int64),
                                                         own["period"].astype(str)]))
     keys = pd.MultiIndex.from_arrays([seasons["year"].to_numpy(),
                                       seasons["season"].astype(str).to_numpy()])
     values = lookup.reindex(keys).to_numpy(dtype=float)
-    return np.where(np.isfinite(values), values, np.asarray(central, dtype=float))
+    central = np.asarray(central, dtype=float)
+    # never below the year's: a threshold read too high costs data, one too low biases
+    return np.where(np.isfinite(values), np.fmax(values, central), central)
 
 
-def contrast_warnings(contrast: pd.DataFrame) -> list[str]:
+def threshold_runs(index, latitude, table: pd.DataFrame, year_runs: dict,
+                   contrast: pd.DataFrame, rule: str = "own_threshold") -> dict:
+    """Per-record u* thresholds of every run, seasons included where they differ.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Interval start times (local standard time).
+    latitude : float
+        Site latitude [degrees].
+    table : pandas.DataFrame
+        The u* table (``year``, ``period``, ``threshold``, ``threshold_pXX``).
+    year_runs : dict of str to numpy.ndarray
+        The year's threshold per record [m s-1] of the run ``central`` and of
+        each scenario ``ustar_pXX``.
+    contrast : pandas.DataFrame
+        :func:`seasonal_contrast` of `table`.
+    rule : str, optional
+        One of :data:`DISTINCT_SEASON_RULES` (see the module docstring).
+
+    Returns
+    -------
+    dict of str to numpy.ndarray
+        `year_runs` unchanged where no year qualifies. Otherwise, with
+        ``"own_threshold"``: ``central`` and the scenarios with the seasons of
+        the qualifying years at their own thresholds (:func:`seasonal_thresholds`,
+        the scenarios at the seasons' own percentiles) and ``ustar_year`` (the
+        year's threshold on every night); with ``"uncertainty_only"``:
+        `year_runs` and ``ustar_seasonal`` (the seasonal central thresholds).
+    """
+    if rule not in DISTINCT_SEASON_RULES:
+        raise ConfigError(f"ustar_distinct_seasons = {rule!r}: expected one of "
+                         f"{', '.join(DISTINCT_SEASON_RULES)}")
+    if contrast.empty:
+        return dict(year_runs)
+    years = contrast["year"]
+
+    def seasonal(name):
+        column = "threshold" if name == "central" else f"threshold_{name.split('_')[-1]}"
+        if column not in table.columns:
+            return year_runs[name]
+        return seasonal_thresholds(index, latitude, table, year_runs[name], years, column)
+
+    if rule == "uncertainty_only":
+        return {**year_runs, "ustar_seasonal": seasonal("central")}
+    return {**{name: seasonal(name) for name in year_runs}, "ustar_year": year_runs["central"]}
+
+
+def contrast_warnings(contrast: pd.DataFrame, rule: str = "own_threshold") -> list[str]:
     """One warning per row of :func:`seasonal_contrast`, naming the seasons and thresholds."""
+    if rule == "own_threshold":
+        what = ("Each season of that year is filtered at its own threshold where it is higher "
+                "than the year's; the run with the year's threshold on every night (annual "
+                "columns *_ustar_year) is added to the u* part of the uncertainty")
+    else:
+        what = (f"Nights between the two thresholds lost flux but are kept "
+                "(ustar_distinct_seasons = \"uncertainty_only\"): annual NEE may be too "
+                "negative. The run with each season's own threshold (annual columns "
+                "*_ustar_seasonal) is added to the u* part of the uncertainty")
     return [f"u* threshold in {row.year} changes with the season: {row.season} "
             f"{row.season_threshold:.3f} m s-1 (bootstrap 5th percentile "
-            f"{row.season_p05:.3f}) against the year's {row.year_threshold:.3f} applied to "
-            f"every night, while {row.lowest_season} lies at most {row.lowest_p95:.3f}. "
-            f"{row.season.capitalize()} nights between the two thresholds lost flux but are "
-            "kept: annual NEE may be too negative. The run with each season's own threshold "
-            "(annual columns *_ustar_seasonal) is added to the u* part of the uncertainty; "
-            "ustar_annual = \"maximum\" applies the largest seasonal threshold to the year"
+            f"{row.season_p05:.3f}) against the year's {row.year_threshold:.3f}, while "
+            f"{row.lowest_season} lies at most {row.lowest_p95:.3f}. {what}"
             for row in contrast.itertuples()]

@@ -2,7 +2,8 @@
 
 Thresholds per season are those of Papale et al. (2006) (m); the rule for "clearly
 differs" (non-overlapping bootstrap 5–95 % ranges and more than 20 % above the
-year's threshold) is ours. The known-truth test uses the invented demo site.
+year's threshold) and the floor at the year's threshold are ours. The known-truth
+test uses the invented demo site.
 """
 
 from statistics import NormalDist
@@ -13,6 +14,7 @@ import pytest
 
 import fluxpart
 from fluxpart import demo, ustar_seasonal
+from fluxpart.errors import ConfigError
 from fluxpart.uncertainty import ustar_sigma
 from fluxpart.units import flux_to_carbon
 
@@ -52,14 +54,17 @@ def test_table_without_bootstrap_percentiles_gives_nothing():
 
 @pytest.mark.parametrize("latitude, january_season", [(50.0, "winter"), (-35.0, "summer")])
 def test_seasonal_thresholds_follow_the_hemisphere(latitude, january_season):
-    # meteorological seasons, shifted by six months in the south (common practice)
+    # meteorological seasons, shifted by six months in the south (common practice);
+    # a season is never filtered below the year's threshold (our rule)
     index = pd.date_range("2021-01-01", periods=365 * 48, freq="30min")
     table = _table(0.24, {"winter": (0.20, 0.19, 0.21), "summer": (0.37, 0.35, 0.39),
                           "spring": (np.nan, np.nan, np.nan)})
     central = np.full(len(index), 0.24)
     values = ustar_seasonal.seasonal_thresholds(index, latitude, table, central, [2021])
-    expected_january = {"winter": 0.20, "summer": 0.37}[january_season]
+    expected_january = {"winter": 0.24, "summer": 0.37}[january_season]
+    expected_july = {"winter": 0.37, "summer": 0.24}[january_season]
     assert values[index.month == 1] == pytest.approx(expected_january)
+    assert values[index.month == 7] == pytest.approx(expected_july)
     # a season without its own threshold keeps the year's
     undetected = "MAM" if latitude >= 0 else "SON"
     months = {"MAM": [3, 4, 5], "SON": [9, 10, 11]}[undetected]
@@ -69,14 +74,44 @@ def test_seasonal_thresholds_follow_the_hemisphere(latitude, january_season):
         == pytest.approx(central)
 
 
-def test_ustar_sigma_adds_the_seasonal_shift_in_quadrature():
+def test_threshold_runs_put_the_seasons_in_the_central_run_and_its_scenarios():
+    index = pd.date_range("2021-01-01", periods=365 * 48, freq="30min")
+    table = _table(0.24, {"winter": (0.20, 0.19, 0.21), "summer": (0.37, 0.35, 0.39)})
+    table["threshold_p16"] = table["threshold"] - 0.01
+    table["threshold_p84"] = table["threshold"] + 0.01
+    year_runs = {"central": np.full(len(index), 0.24), "ustar_p16": np.full(len(index), 0.23),
+                 "ustar_p84": np.full(len(index), 0.25)}
+    contrast = ustar_seasonal.seasonal_contrast(table)
+    july = index.month == 7
+
+    runs = ustar_seasonal.threshold_runs(index, 50.0, table, year_runs, contrast)
+    assert set(runs) == {"central", "ustar_p16", "ustar_p84", "ustar_year"}
+    assert runs["central"][july] == pytest.approx(0.37)
+    assert runs["ustar_p16"][july] == pytest.approx(0.36)   # the season's own percentile
+    assert runs["ustar_p84"][july] == pytest.approx(0.38)
+    assert runs["ustar_year"] == pytest.approx(year_runs["central"])
+    assert runs["central"][index.month == 1] == pytest.approx(0.24)    # floor: the year's
+
+    kept = ustar_seasonal.threshold_runs(index, 50.0, table, year_runs, contrast,
+                                         "uncertainty_only")
+    assert kept["central"] == pytest.approx(year_runs["central"])
+    assert kept["ustar_seasonal"][july] == pytest.approx(0.37)
+    # no qualifying year: the year's thresholds, nothing added
+    none = ustar_seasonal.threshold_runs(index, 50.0, table, year_runs, contrast.iloc[:0])
+    assert set(none) == set(year_runs)
+    with pytest.raises(ConfigError, match="ustar_distinct_seasons"):
+        ustar_seasonal.threshold_runs(index, 50.0, table, year_runs, contrast, "summer")
+
+
+@pytest.mark.parametrize("alternative", ["ustar_seasonal", "ustar_year"])
+def test_ustar_sigma_adds_the_seasonal_shift_in_quadrature(alternative):
     sums = pd.DataFrame({"central": [-250.0], "ustar_p16": [-256.0], "ustar_p84": [-248.0],
-                         "ustar_seasonal": [-238.0]})
+                         alternative: [-238.0]})
     # (max - min) over the z span of the 16th and 84th percentiles (standard normal)
     bootstrap = 8.0 / (2.0 * NormalDist().inv_cdf(0.84))
     expected = np.hypot(bootstrap, 12.0)
     assert ustar_sigma(sums, (16, 84)).iloc[0] == pytest.approx(expected, rel=1e-12)
-    assert ustar_sigma(sums.drop(columns="ustar_seasonal"), (16, 84)).iloc[0] == \
+    assert ustar_sigma(sums.drop(columns=alternative), (16, 84)).iloc[0] == \
         pytest.approx(bootstrap, rel=1e-12)
 
 
@@ -93,13 +128,19 @@ def test_summer_threshold_raised_on_known_truth_is_warned_and_covered():
     true_nee = float(np.sum(flux_to_carbon(truth["nee"].to_numpy(), 30)))
 
     assert any("changes with the season: summer" in w for w in result.warnings)
-    seasonal, central = float(annual["nee_ustar_seasonal"]), float(annual["nee"])
-    assert abs(seasonal - true_nee) < abs(central - true_nee)
-    assert float(annual["nee_uncertainty_ustar"]) >= abs(seasonal - central)
+    # the central run filters summer at its own threshold; the year's is the alternative
+    year_only, central = float(annual["nee_ustar_year"]), float(annual["nee"])
+    assert abs(central - true_nee) < abs(year_only - true_nee)
+    assert float(annual["nee_uncertainty_ustar"]) >= abs(year_only - central)
     assert annual["nee_ci95_low"] <= true_nee <= annual["nee_ci95_high"]
+    thresholds = result.timeseries["ustar_threshold"]
+    in_summer = thresholds[summer].median()
+    assert in_summer > 1.2 * float(annual["ustar_threshold"])      # summer's own, higher
+    assert thresholds[~summer].min() == pytest.approx(float(annual["ustar_threshold"]))
 
 
 def test_no_seasonal_run_where_one_threshold_holds(written_demo):
     result, _ = written_demo
     assert "nee_ustar_seasonal" not in result.annual.columns
+    assert "nee_ustar_year" not in result.annual.columns
     assert not any("changes with the season" in w for w in result.warnings)
