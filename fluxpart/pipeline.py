@@ -494,13 +494,25 @@ def _nighttime_settings(config, rg) -> dict:
             "e0_method": config.e0_method}
 
 
+def _respiration_temperature(table, name, delay, filled=False) -> np.ndarray:
+    """The respiration driver `name` from `table` [°C], delayed by `delay` records.
+
+    ``filled``: the gap-filled column (evaluated at every record; the first
+    records take the first value), else the measured one (NaN-padded for fits).
+    """
+    values = table[f"{name}_filled" if filled else name].to_numpy(dtype=float)
+    return temperature_choice.delayed(values, delay, pad="first" if filled else "nan")
+
+
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
-                        temperature, config, curvature, night_fit=None, central_fill=None):
+                        temperature, config, curvature, night_fit=None, central_fill=None,
+                        delay=0):
     """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
 
     `night_fit`: the temperature choice's nighttime fit on the same measured NEE
     and temperature, reused instead of fitting again. `central_fill`: the central
-    run's NEE fill, whose day records a u* scenario shares (below).
+    run's NEE fill, whose day records a u* scenario shares (below). `delay`:
+    records by which the respiration temperature is delayed (the choice's).
     """
     too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
     nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
@@ -514,14 +526,14 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
                                for column in night_fill.columns}, index=night_fill.index)
     else:
         filled = _fill_nee(nee_measured, conditions, frame.index, is_night, config)
-    temperature_filled = filled_drivers[f"{temperature}_filled"].to_numpy()
+    temperature_filled = _respiration_temperature(filled_drivers, temperature, delay, True)
     if night_fit is not None:
         night = nighttime.apply_fit(night_fit, filled["value"].to_numpy(), temperature_filled)
     else:
         night = nighttime.partition_nighttime(
             frame.index, nee_measured, filled["value"].to_numpy(),
-            screened[temperature].to_numpy(), temperature_filled, is_night,
-            respiration_driver=temperature,
+            _respiration_temperature(screened, temperature, delay), temperature_filled,
+            is_night, respiration_driver=temperature,
             **_nighttime_settings(config, screened["rg"].to_numpy(dtype=float)))
     # the daytime method estimates E0 from its own night windows; where none has the
     # temperature range for it (e.g. a damped soil temperature), the nighttime method's
@@ -658,10 +670,12 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     # memory for no gain in wall time (GIL-bound); sites run in parallel in `batch`
     # the choice fitted each candidate on the central run's measured NEE: its fits are
     # reused where the measured temperature is the same series
+    delay = 0 if choice is None else choice.delay_records
     night_fits = {} if choice is None else {
         name: fit for name, fit in choice.fits.items()
-        if np.array_equal(frame[name].to_numpy(dtype=float),
-                          screened[name].to_numpy(dtype=float), equal_nan=True)
+        if np.array_equal(frame[name.removesuffix("_undelayed")].to_numpy(dtype=float),
+                          screened[name.removesuffix("_undelayed")].to_numpy(dtype=float),
+                          equal_nan=True)
         or name == temperature}
     outcomes = {}
     curvature = config.daytime_curvature
@@ -670,7 +684,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
             outcomes[name] = _fill_and_partition(
                 *arguments, threshold, temperature, config, curvature,
                 night_fits.get(temperature) if name == "central" else None,
-                None if name == "central" else outcomes["central"][2])
+                None if name == "central" else outcomes["central"][2], delay)
             if name == "central":
                 # the u* scenarios keep the central run's light-response curvature, so
                 # that their spread is the u* threshold's alone
@@ -689,7 +703,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     # the nighttime method's central Reco averaged over the two respiration forms; the
     # same per-record shift in every u* run keeps their spread the threshold's alone
     form = _respiration_form(frame, filled_drivers, outcomes["central"], is_night, temperature,
-                             config)
+                             config, delay)
     outcomes = {name: (*outcome[:3], _shifted(outcome[3], form.shift), outcome[4])
                 for name, outcome in outcomes.items()}
     too_calm, nee_measured, filled, night, day = outcomes["central"]
@@ -753,7 +767,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     timeseries = timeseries.assign(nee_random_error=sigma)
     daily, monthly, annual, gapfill_model = _uncertainty(
         daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night, night, day,
-        temperature, interval, config, year_keys, night_fits, error_model, form)
+        temperature, interval, config, year_keys, night_fits, error_model, form, delay)
     parameters["gapfill_error_model"] = gapfill_model
     annual = annual.join(uncertainty.carbon_accounting_units(annual))
     audit_table = audit.audit_trail(timeseries, year_keys=year_keys)
@@ -798,14 +812,14 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                                     "checked": uncertainty.CALIBRATION_CHECK}})
 
 
-def _respiration_form(frame, filled_drivers, central, is_night, temperature, config):
+def _respiration_form(frame, filled_drivers, central, is_night, temperature, config, delay=0):
     """Both respiration forms' nighttime Reco on the central run, averaged as configured."""
     _, nee_measured, filled, night, _ = central
     try:
         exponential = respiration_form.exponential_reco(
             frame.index, nee_measured, filled["value"].to_numpy(dtype=float),
-            frame[temperature].to_numpy(dtype=float),
-            filled_drivers[f"{temperature}_filled"].to_numpy(dtype=float), is_night,
+            _respiration_temperature(frame, temperature, delay),
+            _respiration_temperature(filled_drivers, temperature, delay, True), is_night,
             respiration_driver=temperature,
             **_nighttime_settings(config, frame["rg"].to_numpy(dtype=float)))
     except FluxpartError:
@@ -825,7 +839,7 @@ def _shifted(night, shift):
 
 def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night,
                  night, day, temperature, interval, config, year_keys, night_fits,
-                 error_model=None, form=None):
+                 error_model=None, form=None, delay=0):
     """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals.
 
     `night_fits`: nighttime fits on the central measured NEE and the input's temperature
@@ -862,7 +876,15 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
 
     other = {"tair": "tsoil", "tsoil": "tair"}[temperature]
     other_reco = None
-    if f"{other}_filled" in timeseries.columns and other in timeseries.columns:
+    if delay and "tair_undelayed" in night_fits:
+        # the other candidate of a delayed air temperature is the undelayed one
+        try:
+            other_reco = nighttime.apply_fit(
+                night_fits["tair_undelayed"], nee_filled,
+                timeseries["tair_filled"].to_numpy(dtype=float)).reco
+        except FluxpartError:
+            other_reco = None
+    elif f"{other}_filled" in timeseries.columns and other in timeseries.columns:
         if other in night_fits:    # the temperature choice fitted it on the central NEE
             try:
                 other_reco = nighttime.apply_fit(
@@ -878,7 +900,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         other_reco = other_reco + form.shift
     inputs = uncertainty.record_inputs(
         index, runs["central"], runs if len(runs) > 1 else {}, measured, noise, is_night,
-        timeseries[f"{temperature}_filled"].to_numpy(dtype=float), night, day.parameters,
+        _respiration_temperature(timeseries, temperature, delay, True), night, day.parameters,
         gapfill_model, rref_window_days=config.rref_window_days, other_driver_reco=other_reco,
         nee_measured=nee_measured,
         fill_window_days=timeseries["nee_fill_window_days"].to_numpy(dtype=float),

@@ -24,6 +24,21 @@ end, a temperature unrelated to the flux pulls it down to the lower end), unless
 its sum of squares is lower by strong evidence (ΔBIC beyond
 :data:`STRONG_EVIDENCE_BIC`), in which case the nearness to the bound is read as
 an imprecise E0 and the comparison decides.
+
+**Air temperature with a delay** (since 0.11.0), only where the input has no soil
+temperature: respiration follows the temperature of the soil and litter, whose
+daily wave lags the air's by hours (the phase lag of a daily temperature wave
+grows by one radian, ~3.8 h, per damping depth, ~0.1 m in moist soil; textbook
+soil physics, e.g. Campbell & Norman 1998 (m)), so the night flux plotted
+against air temperature loops (diel hysteresis; Phillips et al. 2011 (m)). Fitted
+on air temperature, the evening's respiration, still driven by the warm
+afternoon, reads as a higher respiration at a given temperature, and the curve
+extrapolated into the morning and the day overestimates Reco. The nighttime method
+is fitted with air temperature delayed by each of :data:`AIR_DELAYS_HOURS`; the
+delay with the smallest sum of squared night residuals replaces the undelayed air
+temperature when its BIC, with one parameter more (n ln(SSR_delay / SSR_0) +
+ln n), is lower by more than :data:`STRONG_EVIDENCE_BIC`: the delay is picked from
+several, so positive evidence alone is not enough.
 """
 
 from __future__ import annotations
@@ -58,6 +73,27 @@ on soil temperature at E0 317 K gave soil E0 397 ± 61 K and ΔBIC −6.5; air t
 chosen by the bound rule alone, overestimated annual Reco by 14.5 %)."""
 
 
+AIR_DELAYS_HOURS = (1, 2, 3, 4, 5, 6)
+"""Delays of air temperature [h] tried where the input has no soil temperature: up to
+the phase lag of the daily wave at about 1.5 damping depths (~15 cm), the depths whose
+temperature soil respiration follows (our reading of textbook soil physics (m))."""
+
+
+def delayed(values, records: int, pad: str = "first"):
+    """`values` delayed by `records` steps: ``out[i] = values[i - records]``.
+
+    The first `records` values take the first value (``pad="first"``, for a
+    series evaluated at every record) or NaN (``pad="nan"``, for a measured
+    series entering a fit).
+    """
+    values = np.asarray(values, dtype=float)
+    if records <= 0:
+        return values.copy()
+    head = np.full(min(records, len(values)), values[0] if pad == "first" and len(values)
+                   else np.nan)
+    return np.concatenate([head, values[:len(values) - len(head)]])
+
+
 @dataclass(frozen=True)
 class TemperatureChoice:
     """Outcome of :func:`choose_respiration_temperature`.
@@ -83,7 +119,19 @@ class TemperatureChoice:
         The nighttime fit of each candidate that was fitted
         (:class:`~fluxpart.partition.nighttime.NighttimeResult` on the measured
         temperature), for reuse by :func:`~fluxpart.partition.nighttime.apply_fit`;
-        not part of :meth:`to_dict`.
+        not part of :meth:`to_dict`. With a delay, ``"tair"`` is the fit on the
+        delayed air temperature and ``"tair_undelayed"`` the one on air temperature.
+    delay_records : int
+        Records by which the chosen temperature is delayed (0: none; only air
+        temperature, only without soil temperature).
+    delay_hours : float
+        The same delay [h].
+    delay_delta_bic : float
+        BIC of the best delay minus BIC without delay (one parameter more); NaN
+        when no delay was tried.
+    delay_weight : float
+        Posterior weight of the delay against none under equal priors; NaN when
+        no delay was tried.
     """
 
     driver: str
@@ -93,6 +141,10 @@ class TemperatureChoice:
     delta_bic: float
     tsoil_weight: float
     fits: dict = field(default_factory=dict, repr=False, compare=False)
+    delay_records: int = 0
+    delay_hours: float = 0.0
+    delay_delta_bic: float = np.nan
+    delay_weight: float = np.nan
 
     def to_dict(self) -> dict:
         """Plain values for the provenance record."""
@@ -100,7 +152,10 @@ class TemperatureChoice:
                 "criterion": "BIC of the nighttime Lloyd–Taylor fit to measured night NEE",
                 "ssr": {name: _plain(value) for name, value in self.ssr.items()},
                 "records": int(self.records), "delta_bic_tsoil_minus_tair":
-                    _plain(self.delta_bic), "tsoil_weight": _plain(self.tsoil_weight)}
+                    _plain(self.delta_bic), "tsoil_weight": _plain(self.tsoil_weight),
+                "delay_hours": float(self.delay_hours),
+                "delay_delta_bic": _plain(self.delay_delta_bic),
+                "delay_weight": _plain(self.delay_weight)}
 
 
 def _plain(value: float):
@@ -159,8 +214,7 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     nee = np.asarray(nee_measured, dtype=float)
     night = np.asarray(is_night, dtype=bool)
     if tsoil is None:
-        return TemperatureChoice("tair", "the input has no soil temperature",
-                                 {"tair": np.nan, "tsoil": np.nan}, 0, np.nan, np.nan)
+        return _air_delay(index, nee, tair, night, nighttime_settings)
     fits = {"tair": _night_fit(index, nee, tair, night, "tair", nighttime_settings)}
     try:
         fits["tsoil"] = _night_fit(index, nee, tsoil, night, "tsoil", nighttime_settings)
@@ -203,6 +257,54 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
                        f"{pressed[driver]} K is within one standard error of the accepted "
                        f"range {list(bounds)} K")
     return TemperatureChoice(driver, reason, ssr, count, delta_bic, weight, fits)
+
+
+def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
+    """Air temperature, delayed where the night data favour it (module docstring)."""
+    tair = np.asarray(tair, dtype=float)
+    fits = {"tair_undelayed": _night_fit(index, nee, tair, night, "tair", settings)}
+    step_hours = (index[1] - index[0]) / np.timedelta64(1, "h") if len(index) > 1 else 0.5
+    delays = sorted({int(round(hours / step_hours)) for hours in AIR_DELAYS_HOURS} - {0})
+    reco = {0: fits["tair_undelayed"].reco}
+    for records in delays:
+        try:
+            fit = _night_fit(index, nee, delayed(tair, records, pad="nan"), night, "tair",
+                             settings)
+        except InsufficientDataError:
+            continue
+        fits[records] = fit
+        reco[records] = fit.reco
+    shared = night & np.isfinite(nee)
+    for values in reco.values():
+        shared &= np.isfinite(values)
+    count = int(shared.sum())
+    ssr = {records: float(np.sum(np.square(nee[shared] - values[shared])))
+           for records, values in reco.items()}
+    undelayed = fits.pop("tair_undelayed")
+    none = {"tair": ssr.get(0, np.nan), "tsoil": np.nan}
+    if count < MIN_SHARED_RECORDS or len(ssr) < 2 or min(ssr.values()) <= 0:
+        return TemperatureChoice("tair", "the input has no soil temperature",
+                                 none, count, np.nan, np.nan, {"tair": undelayed})
+    best = min((records for records in ssr if records), key=lambda r: (ssr[r], r))
+    delta_bic = count * float(np.log(ssr[best] / ssr[0])) + float(np.log(count))
+    weight = float(1.0 / (1.0 + np.exp(np.clip(delta_bic / 2.0, -700.0, 700.0))))
+    hours = best * step_hours
+    if delta_bic < -STRONG_EVIDENCE_BIC:
+        reason = (f"the input has no soil temperature; air temperature delayed by {hours:g} h "
+                  f"explains the measured night NEE better (ΔBIC delayed - undelayed = "
+                  f"{delta_bic:.1f} over {count} records, one parameter more), as soil "
+                  "respiration lags the air")
+        return TemperatureChoice("tair", reason, {**none, "tair_delayed": ssr[best]}, count,
+                                 np.nan, np.nan, {"tair": fits[best],
+                                                  "tair_undelayed": undelayed},
+                                 delay_records=best, delay_hours=hours,
+                                 delay_delta_bic=delta_bic, delay_weight=weight)
+    reason = (f"the input has no soil temperature; air temperature kept undelayed (best "
+              f"delay {hours:g} h: ΔBIC {delta_bic:.1f} over {count} records, not beyond "
+              f"{-STRONG_EVIDENCE_BIC:g})")
+    return TemperatureChoice("tair", reason, {**none, "tair_delayed": ssr[best]}, count,
+                             np.nan, np.nan, {"tair": undelayed}, delay_hours=0.0,
+                             delay_delta_bic=delta_bic, delay_weight=weight)
 
 
 def _night_fit(index, nee, temperature, night, name, settings):
