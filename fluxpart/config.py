@@ -163,8 +163,11 @@ class Config:
         measured, u*-filtered night NEE better: soil temperature where its BIC is
         lower by more than 2, "positive evidence" after Kass & Raftery 1995, air
         temperature otherwise and where there is no ``tsoil`` column; see
-        :mod:`fluxpart.partition.temperature_choice`). The
-        choice and both criterion values are in ``provenance["respiration_driver"]``.
+        :mod:`fluxpart.partition.temperature_choice`). Without a ``tsoil`` column
+        (since 0.11.0), air temperature delayed by 1–6 h where its BIC, with one
+        parameter more, is lower by more than 6 (strong evidence): soil respiration
+        lags the air by hours (diel hysteresis, Phillips et al. 2011 (m)). The
+        choice and the criterion values are in ``provenance["respiration_driver"]``.
         Default ``"auto"``: Lloyd & Taylor (1994) fitted soil respiration to soil
         temperature, while some ecosystems' respiration follows air temperature,
         and at night NEE is Reco, so the night data decide (on 8 generated

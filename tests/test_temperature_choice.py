@@ -6,6 +6,10 @@ information criterion of Schwarz (1978) for two least-squares models with equal
 parameter counts, ΔBIC = n ln(SSR_2 / SSR_1), and its equal-prior posterior
 weight 1 / (1 + exp(ΔBIC / 2)) (Burnham & Anderson 2002, ch. 6). Known-truth
 recovery tests use invented weather (the only place invented data is used).
+The delayed air temperature: BIC with one parameter more, n ln(SSR_1 / SSR_0) +
+ln n (Schwarz 1978); respiration lagging air temperature by hours is the diel
+hysteresis of soil respiration (Phillips et al. 2011, Global Change Biology
+17:515–527 (m)).
 """
 
 import math
@@ -16,7 +20,11 @@ import pytest
 
 from fluxpart.config import Config
 from fluxpart.errors import ConfigError
-from fluxpart.partition.temperature_choice import choose_respiration_temperature
+from fluxpart.partition.temperature_choice import (
+    STRONG_EVIDENCE_BIC,
+    choose_respiration_temperature,
+    delayed,
+)
 
 
 def _eq11(temperature_celsius, rref, e0):
@@ -87,13 +95,49 @@ def test_criterion_is_the_bic_of_the_lloyd_taylor_fit():
 
 
 def test_without_soil_temperature_air_temperature_is_used():
-    """No tsoil column: the fallback is air temperature, no criterion values."""
+    """No tsoil column: air temperature, undelayed where respiration follows it."""
     rng, index, tair, _, is_night = _weather(seed=3, days=60)
     nee = _night_nee(rng, index, tair, is_night)
     choice = choose_respiration_temperature(index, nee, tair, None, is_night)
     assert choice.driver == "tair"
     assert "no soil temperature" in choice.reason
     assert choice.to_dict()["delta_bic_tsoil_minus_tair"] is None
+    assert choice.delay_records == 0 and choice.delay_hours == 0.0
+    assert choice.delay_delta_bic > -STRONG_EVIDENCE_BIC
+
+
+def test_delayed_shifts_a_series_forward_in_time():
+    values = np.array([1.0, 2.0, 3.0, 4.0])
+    assert delayed(values, 2).tolist() == [1.0, 1.0, 1.0, 2.0]
+    assert np.isnan(delayed(values, 1, pad="nan")[0])
+    assert delayed(values, 1, pad="nan")[1:].tolist() == [1.0, 2.0, 3.0]
+    assert delayed(values, 0).tolist() == values.tolist()
+
+
+@pytest.mark.parametrize("seed", [1, 2])
+def test_respiration_lagging_air_temperature_is_found_without_soil_temperature(seed):
+    """Known truth: night respiration planted on air temperature 3 h earlier."""
+    rng, index, tair, _, is_night = _weather(seed=seed, days=90)
+    lagged = np.concatenate([np.full(6, tair[0]), tair[:-6]])      # 6 half-hours
+    nee = _night_nee(rng, index, lagged, is_night)
+    choice = choose_respiration_temperature(index, nee, tair, None, is_night)
+    assert choice.delay_records == 6 and choice.delay_hours == pytest.approx(3.0)
+    assert "delayed by 3 h" in choice.reason
+    # the criterion as written out: BIC of the delayed fit (one parameter more) minus
+    # the undelayed one's, over the shared night records
+    n = choice.records
+    ssr_undelayed, ssr_delayed = choice.ssr["tair"], choice.ssr["tair_delayed"]
+    assert choice.delay_delta_bic == pytest.approx(
+        n * math.log(ssr_delayed / ssr_undelayed) + math.log(n), rel=1e-9)
+    assert choice.delay_delta_bic < -STRONG_EVIDENCE_BIC
+    # the kept fit is on the delayed temperature: its Reco follows the planted one
+    elapsed = np.asarray((index - index[0]) / pd.Timedelta(days=1))
+    planted = _eq11(lagged, 2.0 + 0.4 * np.sin(2 * np.pi * elapsed / 60.0), 220.0)
+    delayed_fit, undelayed_fit = choice.fits["tair"], choice.fits["tair_undelayed"]
+    day = ~is_night & np.isfinite(delayed_fit.reco) & np.isfinite(undelayed_fit.reco)
+    error_delayed = abs(np.sum(delayed_fit.reco[day] - planted[day]))
+    error_undelayed = abs(np.sum(undelayed_fit.reco[day] - planted[day]))
+    assert error_delayed < 0.5 * error_undelayed
 
 
 def test_a_soil_temperature_that_cannot_be_fitted_falls_back_to_air():
