@@ -199,7 +199,7 @@ def contrast_warnings(contrast: pd.DataFrame, rule: str = "own_threshold") -> li
                 "than the year's; the run with the year's threshold on every night (annual "
                 "columns *_ustar_year) is added to the u* part of the uncertainty")
     else:
-        what = (f"Nights between the two thresholds lost flux but are kept "
+        what = ("Nights between the two thresholds lost flux but are kept "
                 "(ustar_distinct_seasons = \"uncertainty_only\"): annual NEE may be too "
                 "negative. The run with each season's own threshold (annual columns "
                 "*_ustar_seasonal) is added to the u* part of the uncertainty")
