@@ -18,6 +18,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
+import fluxpart
+from fluxpart import demo
 from fluxpart.config import Config
 from fluxpart.errors import ConfigError
 from fluxpart.partition.temperature_choice import (
@@ -25,6 +27,7 @@ from fluxpart.partition.temperature_choice import (
     choose_respiration_temperature,
     delayed,
 )
+from fluxpart.units import flux_to_carbon
 
 
 def _eq11(temperature_celsius, rref, e0):
@@ -230,3 +233,27 @@ def test_strong_evidence_keeps_a_candidate_whose_e0_is_near_the_range():
     assert choice.delta_bic < -tc.STRONG_EVIDENCE_BIC
     assert choice.driver == "tsoil"
     assert "strongly" in choice.reason and "within one standard error" in choice.reason
+
+
+def test_a_run_without_soil_temperature_follows_respiration_that_lags_the_air():
+    """Invented known truth through the whole pipeline: the demo's respiration (planted on
+    air temperature) delayed by 3 h, as if it followed a soil lagging the air."""
+    frame, truth = demo.site_year(seed=1)
+    reco = truth["reco"].to_numpy()
+    lagged = np.concatenate([np.full(6, reco[0]), reco[:-6]])          # six half-hours
+    frame = frame.drop(columns="tsoil").assign(nee=frame["nee"] - reco + lagged)
+    true_reco = float(np.sum(flux_to_carbon(lagged, 30)))
+    errors = {}
+    for driver in ("auto", "tair"):
+        config = Config(respiration_driver=driver, ustar_bootstrap_draws=20,
+                        random_error_draws=50)
+        result = fluxpart.process(frame, demo.site(), config)
+        annual = result.annual.iloc[0]
+        errors[driver] = {flux: abs(float(annual[flux]) - true_reco)
+                          for flux in ("reco_nighttime", "reco_daytime")}
+        if driver == "auto":
+            record = result.provenance["respiration_driver"]
+            assert record["delay_hours"] == pytest.approx(3.0)
+            assert record["delay_delta_bic"] < -STRONG_EVIDENCE_BIC
+    for flux in ("reco_nighttime", "reco_daytime"):
+        assert errors["auto"][flux] < 0.5 * errors["tair"][flux], flux
