@@ -674,6 +674,12 @@ def _provenance(manifest: dict) -> str:
     if "clock" in provenance:
         parts.append(f'<tr><th scope="row">clock check</th><td>{_e(provenance["clock"])}'
                      "</td></tr>")
+    driver = provenance.get("respiration_driver")
+    if isinstance(driver, dict):
+        chosen = driver.get("chosen", driver.get("setting", ""))
+        why = f": {driver['reason']}" if driver.get("reason") else " (as set)"
+        parts.append(f'<tr><th scope="row">respiration temperature</th><td>{_e(chosen)}'
+                     f"{_e(why)}</td></tr>")
     stated = provenance.get("uncertainty")
     if isinstance(stated, dict):
         left_out = "; ".join(str(item) for item in stated.get("not_quantified", []))

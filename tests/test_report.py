@@ -746,3 +746,12 @@ def test_page_states_what_the_intervals_leave_out_and_how_they_were_checked(fold
     for item in stated["not_quantified"]:
         assert html.escape(item) in text
     assert html.escape(stated["checked"]) in text
+
+
+def test_page_states_the_respiration_temperature_and_why(folder):
+    """The manifest's record of the respiration temperature choice is on the page as written."""
+    driver = read_manifest(folder["directory"])["provenance"]["respiration_driver"]
+    expected = driver.get("chosen", driver.get("setting"))
+    assert f"respiration temperature</th><td>{html.escape(expected)}" in folder["text"]
+    if driver.get("reason"):
+        assert html.escape(driver["reason"]) in folder["text"]
