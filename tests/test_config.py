@@ -135,6 +135,8 @@ def test_from_toml_missing_and_invalid(tmp_path):
     ({"ustar_min_threshold": -0.1}, r"ustar_min_threshold = -0.1"),
     ({"ustar_min_resolution": -1.0}, r"ustar_min_resolution = -1.0.*from 0 to 20"),
     ({"ustar_annual": "max"}, r'ustar_annual = "max".*"median" or "maximum"'),
+    ({"ustar_distinct_seasons": "summer"},
+     r'ustar_distinct_seasons = "summer".*"own_threshold" or "uncertainty_only"'),
     ({"ustar_plateau_reference": 1.5}, r"ustar_plateau_reference = 1.5.*above 0 and at most 1"),
     ({"ustar_plateau_reference": 0.0}, r"ustar_plateau_reference = 0.0.*above 0"),
     ({"gapfill_donors": "twilight"}, r'gapfill_donors = "twilight".*"separate_day_night"'),
