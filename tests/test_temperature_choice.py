@@ -257,3 +257,13 @@ def test_a_run_without_soil_temperature_follows_respiration_that_lags_the_air():
             assert record["delay_delta_bic"] < -STRONG_EVIDENCE_BIC
     for flux in ("reco_nighttime", "reco_daytime"):
         assert errors["auto"][flux] < 0.5 * errors["tair"][flux], flux
+
+
+def test_too_few_night_records_without_soil_temperature_leave_the_error_to_the_run():
+    """No soil temperature and a night record too short to fit: plain air temperature, no
+    error raised here (the run's own nighttime fit names what is missing)."""
+    rng, index, tair, _, is_night = _weather(seed=4, days=60)
+    nee = _night_nee(rng, index, tair, is_night, measured_fraction=0.002)
+    choice = choose_respiration_temperature(index, nee, tair, None, is_night)
+    assert choice.driver == "tair" and choice.delay_records == 0
+    assert choice.fits == {}

@@ -262,7 +262,12 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
 def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
     """Air temperature, delayed where the night data favour it (module docstring)."""
     tair = np.asarray(tair, dtype=float)
-    fits = {"tair_undelayed": _night_fit(index, nee, tair, night, "tair", settings)}
+    try:
+        fits = {"tair_undelayed": _night_fit(index, nee, tair, night, "tair", settings)}
+    except InsufficientDataError:
+        # the run's own nighttime fit reports why; nothing to compare here
+        return TemperatureChoice("tair", "the input has no soil temperature",
+                                 {"tair": np.nan, "tsoil": np.nan}, 0, np.nan, np.nan)
     step_hours = (index[1] - index[0]) / np.timedelta64(1, "h") if len(index) > 1 else 0.5
     delays = sorted({int(round(hours / step_hours)) for hours in AIR_DELAYS_HOURS} - {0})
     reco = {0: fits["tair_undelayed"].reco}
