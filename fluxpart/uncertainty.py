@@ -81,6 +81,7 @@ __all__ = [
     "RandomErrorModel",
     "UncertaintyInputs",
     "artificial_gap_errors",
+    "bic_weight",
     "carbon_accounting_units",
     "draw_random_errors",
     "driver_weight",
@@ -148,8 +149,9 @@ CONFIDENCE = 0.95
 #: How the stated intervals were checked, for the manifest and the report: measured by
 #: ``tests/benchmarks/bench_calibration.py`` for this release (DEVELOPERS.md).
 CALIBRATION_CHECK = (
-    "fluxpart 0.11.0 (tables equal to 0.10.0's there) on 70 generated known-truth site-years of seven invented archetypes "
-    "(35 held out while most rules were chosen): the stated 95 % intervals contained the true "
+    "fluxpart 0.11.0 (tables equal to 0.10.0's there) on 70 generated known-truth "
+    "site-years of seven invented archetypes (35 held out while most rules were chosen): "
+    "the stated 95 % intervals contained the true "
     "annual sum in 99 % (NEE), 99 % and 97 % (nighttime GPP and Reco) and 91 % and 90 % "
     "(daytime GPP and Reco) of site-years; on 56 site-years of seven further invented "
     "climates in 96 % (NEE), 95 % and 95 % (nighttime GPP and Reco) and 89 % and 95 % "
@@ -1588,8 +1590,16 @@ def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
     ssr_other = float(np.sum(np.square(nee[use] - other[use])))
     if ssr_central <= 0 or ssr_other <= 0:
         return 0.0
-    half_delta_bic = 0.5 * use.sum() * np.log(ssr_other / ssr_central)
-    return float(1.0 / (1.0 + np.exp(np.clip(half_delta_bic, -700.0, 700.0))))
+    return bic_weight(use.sum() * np.log(ssr_other / ssr_central))
+
+
+def bic_weight(delta_bic: float) -> float:
+    """Posterior weight of a model whose BIC exceeds the other's by `delta_bic`.
+
+    ``1 / (1 + exp(ΔBIC / 2))``: two models under equal priors (Schwarz 1978;
+    Burnham & Anderson 2002, ch. 6). ΔBIC < 0 favours the model, > 0 the other.
+    """
+    return float(1.0 / (1.0 + np.exp(np.clip(0.5 * delta_bic, -700.0, 700.0))))
 
 
 def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma, is_night,

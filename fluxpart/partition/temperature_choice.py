@@ -48,7 +48,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import InsufficientDataError
-from ..uncertainty import driver_weight
+from ..uncertainty import bic_weight, driver_weight
 from .nighttime import partition_nighttime
 
 _DEFAULT_E0_BOUNDS = (30.0, 450.0)   # partition_nighttime's default e0_bounds [K]
@@ -266,8 +266,7 @@ def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
         fits = {"tair_undelayed": _night_fit(index, nee, tair, night, "tair", settings)}
     except InsufficientDataError:
         # the run's own nighttime fit reports why; nothing to compare here
-        return TemperatureChoice("tair", "the input has no soil temperature",
-                                 {"tair": np.nan, "tsoil": np.nan}, 0, np.nan, np.nan)
+        return _plain_air({"tair": np.nan, "tsoil": np.nan}, 0, {})
     step_hours = (index[1] - index[0]) / np.timedelta64(1, "h") if len(index) > 1 else 0.5
     delays = sorted({int(round(hours / step_hours)) for hours in AIR_DELAYS_HOURS} - {0})
     reco = {0: fits["tair_undelayed"].reco}
@@ -288,11 +287,10 @@ def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
     undelayed = fits.pop("tair_undelayed")
     none = {"tair": ssr.get(0, np.nan), "tsoil": np.nan}
     if count < MIN_SHARED_RECORDS or len(ssr) < 2 or min(ssr.values()) <= 0:
-        return TemperatureChoice("tair", "the input has no soil temperature",
-                                 none, count, np.nan, np.nan, {"tair": undelayed})
+        return _plain_air(none, count, {"tair": undelayed})
     best = min((records for records in ssr if records), key=lambda r: (ssr[r], r))
     delta_bic = count * float(np.log(ssr[best] / ssr[0])) + float(np.log(count))
-    weight = float(1.0 / (1.0 + np.exp(np.clip(delta_bic / 2.0, -700.0, 700.0))))
+    weight = bic_weight(delta_bic)
     hours = best * step_hours
     if delta_bic < -STRONG_EVIDENCE_BIC:
         reason = (f"the input has no soil temperature; air temperature delayed by {hours:g} h "
@@ -310,6 +308,12 @@ def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
     return TemperatureChoice("tair", reason, {**none, "tair_delayed": ssr[best]}, count,
                              np.nan, np.nan, {"tair": undelayed}, delay_hours=0.0,
                              delay_delta_bic=delta_bic, delay_weight=weight)
+
+
+def _plain_air(ssr, count, fits) -> TemperatureChoice:
+    """Undelayed air temperature, no delay compared (too few records or fits)."""
+    return TemperatureChoice("tair", "the input has no soil temperature", ssr, count, np.nan,
+                             np.nan, fits)
 
 
 def _night_fit(index, nee, temperature, night, name, settings):
