@@ -1644,7 +1644,8 @@ def figure_light_response(drawing, written) -> Figure:
     counts = states["state"].value_counts() if len(states) else pd.Series(dtype=int)
     tally = ", ".join(f"{int(counts[s])} {s}" for s in _STATE_STYLE if s in counts.index)
     caption = ("Red triangles and red-framed panels are windows whose fit sits at a parameter "
-               "bound, orange squares windows replaced by a neighbour, grey crosses rejected "
+               "bound, orange squares windows refitted with Rref fixed at their night "
+               "respiration, grey crosses rejected "
                f"ones ({tally or 'no windows'}); many flagged windows in the growing season "
                "make the daytime method's GPP less trustworthy there (model: Lasslop et al. "
                f"2010, VPD limit above {LASSLOP_VPD0_HPA:g} hPa).")

@@ -99,17 +99,32 @@ Rules and their sources (``(m)`` = recalled from memory, check against the paper
     which the daytime fit otherwise reads as negative respiration), the measured
     respiration is the defensible anchor. Lasslop et al. (2010) instead reuse
     the previous window's parameters (m); that is our fall-back below.
+  * also replaced: a curve half-saturated (``beta0 / alpha``) below the 5th
+    percentile of the window's daytime Rg (our threshold). It is flat over
+    nearly all observed light, a constant daytime offset that trades off against
+    a free Rref, so neither flux is identified from the daytime data alone.
   * rejected after the refit: no night Rref (too few night records), or the
-    refit itself fails (alpha at its upper bound, no convergence, singular).
+    refit itself fails (no convergence, singular).
   * accepted with a note: beta0 at its upper bound after the refit (crops, C4
     canopies whose light response barely saturates: within the observed light
     the curve is nearly linear and alpha absorbs the rest); alpha at 0 after
-    the refit (no detectable assimilation: GPP = 0).
-  * rejected whatever the above: a curve half-saturated (``beta0 / alpha``)
-    below the 5th percentile of the window's daytime Rg (our threshold). It is
-    flat over all observed light, a constant daytime offset that trades off
-    against Rref (bare soil, dormant canopies with noise), so neither flux is
-    identified.
+    the refit (no detectable assimilation: GPP = 0); alpha at its upper bound
+    or the curve half-saturated below the window's light after the refit
+    (since 0.12.0). With Rref fixed, a curve saturated below the window's light
+    is identified: its plateau beta0 is how far the daytime NEE falls below the
+    respiration the night measured, i.e. the daytime uptake, and GPP is nearly
+    that constant through the day. A sparse canopy does this: regrowth after a
+    harvest or a cut, or a canopy whose capacity is small while its quantum
+    efficiency is not, saturates at a few W m-2. Before 0.12.0 such windows were
+    rejected and their records took the curves of the windows in use around
+    them, across a harvest for months: on an independent known-truth trial's
+    wheat (a crop harvested in July, `tests/benchmarks/trial_third.py`) daytime
+    GPP was +90 and +76 g C m-2 in August and September (true 24 each) and the
+    year's +16 % and +12 %; with the anchored plateau −2 % and −3 %. The
+    price: where GPP is truly 0 (bare soil), noise and any error of the night
+    respiration's extrapolation to daytime temperatures can only raise the
+    plateau (beta0 >= 0), a few g C m-2 per month on generated bare-soil
+    months, as the nighttime method's GPP = Reco − NEE does.
 
 - **Curvature** (option; default 0, the published rectangular hyperbola). A fixed
   curvature replaces the rectangular hyperbola by the non-rectangular one
@@ -182,6 +197,9 @@ _RREF_FLOOR_START = 0.1      # µmol m-2 s-1, keeps the start off the bound (our
 # µmol m-2 s-1: a fitted Rref below this is the bound 0 reached to within the iteration's
 # tolerance (a thousandth of the smallest night respiration a tower resolves; our choice)
 _RREF_AT_ZERO = 1e-3
+_SATURATED = "light response half-saturated below the window's lowest light"
+_OFFSET_NOTE = ("saturated below the window's light: GPP is the daytime uptake below the "
+                "night-anchored respiration")
 _LAMBDA_START = 1e-3         # Marquardt damping, usual starting value (common practice)
 _LAMBDA_MAX = 1e10
 _FTOL = 1e-10                # relative cost change at convergence
@@ -518,14 +536,14 @@ def _partition(data, weight, settings) -> dict:
     errors, rmse = _standard_errors(theta, fixed, lower, upper, windows, mask, vpd0)
     status, reason, refit = _judge(theta, errors, fixed, fitted, converged, lower, upper,
                                    rref_night, rref_night_se, settings["consistency_z"],
-                                   settings["rref_max_relative_error"])
+                                   settings["rref_max_relative_error"],
+                                   _saturated_below_light(theta, windows))
     if refit.any():
         theta, errors, rmse, fixed, status, reason = _refit_with_night_rref(
             refit, theta, errors, rmse, fixed, status, reason, rref_night, rref_night_se,
             theta0, lower, upper, windows, usable_day_mask=windows["day"] & fitted[:, None],
             vpd0=vpd0, max_iterations=max_iterations)
 
-    status, reason = _reject_offsets(theta, windows, status, reason)
     used = status != "rejected"
     theta[~fitted] = np.nan
     if not used.any():
@@ -1300,8 +1318,12 @@ def _singular(theta, errors, fixed, lower, upper):
 
 
 def _judge(theta, errors, fixed, fitted, converged, lower, upper, rref_night, rref_night_se,
-           consistency_z, rref_max_relative_error):
-    """Status, reason and whether to refit with the night Rref, per window."""
+           consistency_z, rref_max_relative_error, saturated):
+    """Status, reason and whether to refit with the night Rref, per window.
+
+    ``saturated`` marks fits whose light response is half-saturated below the window's
+    light (:func:`_saturated_below_light`).
+    """
     alpha, beta0, rref = theta[:, _ALPHA], theta[:, _BETA0], theta[:, _RREF]
     with np.errstate(invalid="ignore"):
         distance = np.abs(rref - rref_night) / np.sqrt(errors[:, _RREF] ** 2 + rref_night_se**2)
@@ -1320,6 +1342,7 @@ def _judge(theta, errors, fixed, fitted, converged, lower, upper, rref_night, rr
         (_singular(theta, errors, fixed, lower, upper), "singular fit"),
         (inconsistent, "rref differs from night rref"),
         (unresolved, "rref not resolved by the daytime data"),
+        (saturated, _SATURATED),
     ]
 
     status = np.full(len(theta), "accepted", dtype=object)
@@ -1359,7 +1382,7 @@ def _refit_with_night_rref(refit, theta, errors, rmse, fixed, status, reason, rr
                                             vpd0)
     new_errors[:, _RREF] = rref_night_se[rows]
     alpha, beta0 = new_theta[:, _ALPHA], new_theta[:, _BETA0]
-    failed = [(~converged, "no convergence"), (alpha >= upper[_ALPHA], "alpha at upper bound"),
+    failed = [(~converged, "no convergence"),
               (_singular(new_theta, new_errors, sub_fixed, lower, upper), "singular fit")]
     sub_status = np.full(len(rows), "replaced", dtype=object)
     sub_reason = np.array([f"{why}; refit with night rref" for why in reason[rows]],
@@ -1375,6 +1398,10 @@ def _refit_with_night_rref(refit, theta, errors, rmse, fixed, status, reason, rr
                          for text in sub_reason[notes]]
     notes = open_ & (alpha > lower[_ALPHA]) & (beta0 >= upper[_BETA0])
     sub_reason[notes] = [f"{text} (beta0 at upper bound)" for text in sub_reason[notes]]
+    notes = open_ & (alpha > lower[_ALPHA]) & (
+        (alpha >= upper[_ALPHA])
+        | _saturated_below_light(new_theta, {"day": mask, "rg": subset["rg"]}))
+    sub_reason[notes] = [f"{text} ({_OFFSET_NOTE})" for text in sub_reason[notes]]
     theta, errors, rmse, fixed = theta.copy(), errors.copy(), rmse.copy(), fixed.copy()
     theta[rows], errors[rows], rmse[rows], fixed[rows] = new_theta, new_errors, new_rmse, \
         sub_fixed
@@ -1383,13 +1410,15 @@ def _refit_with_night_rref(refit, theta, errors, rmse, fixed, status, reason, rr
     return theta, errors, rmse, fixed, status, reason
 
 
-def _reject_offsets(theta, windows, status, reason):
-    """Reject fits whose light response is half-saturated below the window's light.
+def _saturated_below_light(theta, windows):
+    """Per window: the light response is half-saturated (``beta0 / alpha``) below the
+    5th percentile of the window's daytime Rg (our threshold), i.e. flat over nearly all
+    observed light.
 
-    Such a curve is flat over every observed Rg: a constant daytime offset that trades
-    off against Rref, so neither GPP nor Rref is identified (typically bare soil or
-    dormant canopies with noise). Threshold: the 5th percentile of the window's
-    daytime Rg (our choice).
+    With Rref free such a curve is a constant daytime offset that trades off against
+    Rref, so neither flux is identified; the window is refitted with Rref fixed at the
+    night Rref, where the offset is the daytime uptake below the respiration the night
+    measured (see the module docstring).
     """
     day_rg = np.where(windows["day"], windows["rg"], np.nan)
     has_day = windows["day"].any(axis=1)
@@ -1398,12 +1427,7 @@ def _reject_offsets(theta, windows, status, reason):
         lowest[has_day] = nanquantile(day_rg[has_day], 0.05, axis=1)
     with np.errstate(divide="ignore", invalid="ignore"):
         half_saturation = theta[:, _BETA0] / theta[:, _ALPHA]
-        flat = (status != "rejected") & (theta[:, _ALPHA] > 0) & (half_saturation < lowest)
-    status, reason = status.copy(), reason.copy()
-    status[flat] = "rejected"
-    note = "light response half-saturated below the window's lowest light (not identified)"
-    reason[flat] = [f"{text}; {note}" if text else note for text in reason[flat]]
-    return status, reason
+        return (theta[:, _ALPHA] > 0) & (half_saturation < lowest)
 
 
 def _neighbours(days, centres):
