@@ -489,6 +489,31 @@ def check_hemisphere(index, rg, latitude, longitude, utc_offset, interval_minute
                           f"(r = {r_configured:.2f})")
 
 
+def _unwrapped_shifts(used: pd.DataFrame) -> pd.DataFrame:
+    """Monthly shifts (and edge shifts) unwrapped around their circular mean [min].
+
+    A shift is known modulo a day: near ±12 h (a UTC offset of the wrong sign at a
+    longitude near ±90°, or a day/night swap) some months read +715 min and others
+    −718. Taken as they are, their median and spread describe neither; unwrapped around
+    the circular mean of the shifts (common practice for directional data) they are
+    one shift of about 12 h again.
+    """
+    angles = used["shift_minutes"].to_numpy(dtype=float) * (2.0 * np.pi / 1440.0)
+    reference = float(np.arctan2(np.mean(np.sin(angles)), np.mean(np.cos(angles))))
+    reference *= 1440.0 / (2.0 * np.pi)
+    if abs(reference) < 360.0:   # shifts within ±6 h of 0 never wrap: unchanged
+        return used
+
+    def unwrap(minutes):
+        return (minutes - reference + 720.0) % 1440.0 - 720.0 + reference
+
+    unwrapped = used.copy()
+    for column in ("shift_minutes", "edge_shift_minutes"):
+        if column in unwrapped.columns:
+            unwrapped[column] = unwrap(unwrapped[column].to_numpy(dtype=float))
+    return unwrapped
+
+
 def _daylight_saving(used: pd.DataFrame):
     """Base shift and later months where the shifts form two groups one hour apart."""
     shifts = used["shift_minutes"].to_numpy()
@@ -556,6 +581,13 @@ def _one_block(inside: set, outside: set) -> bool:
     return False
 
 
+#: UTC offsets in use that are not whole hours [h] (time zones of Newfoundland, Iran,
+#: Afghanistan, India, Nepal, Myanmar, Central Australia, Chatham Islands and others;
+#: common knowledge (m)): only these are suggested for a shift that is not whole hours.
+_FRACTIONAL_UTC_OFFSETS = frozenset({-9.5, -3.5, 3.5, 4.5, 5.5, 5.75, 6.5, 8.75, 9.5, 10.5,
+                                     12.75})
+
+
 def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: str | None,
          shift_applied: float, longitude: float, latitude: float | None = None
          ) -> tuple[str, float | None]:
@@ -568,11 +600,17 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
         return (f"[site] longitude = {-longitude:g} (the configured {longitude:g} has the "
                 "wrong sign)"), None
     offset = utc_offset + round(hours * 4.0) / 4.0          # offsets come in quarter hours
+    if offset > 14.0:          # a shift is known modulo a day: the zone 24 h earlier
+        offset -= 24.0
+    elif offset < -12.0:
+        offset += 24.0
     fixes = []
-    residual_offset = abs(shift - (offset - utc_offset) * 60.0)
+    residual_offset = abs((shift - (offset - utc_offset) * 60.0 + 720.0) % 1440.0 - 720.0)
     suggested = None
     whole_hours = abs(shift - round(hours) * 60.0) <= 15.0
-    if abs(offset - utc_offset) >= 0.5 and residual_offset <= 15.0 and -12 <= offset <= 14:
+    used_offset = float(offset).is_integer() or offset in _FRACTIONAL_UTC_OFFSETS
+    if (abs(offset - utc_offset) >= 0.5 and residual_offset <= 15.0 and -12 <= offset <= 14
+            and used_offset):
         fixes.append(f"[site] utc_offset = {offset:g} (stamps in UTC{offset:+g} h rather than "
                      f"UTC{utc_offset:+g} h)")
         suggested = float(offset)
@@ -589,6 +627,11 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
         fixes.append("the stamp convention (interval start, middle or end: [input] time_marks)")
     if len(fixes) > 1 and not whole_hours:
         fixes = fixes[1:] + fixes[:1]                        # a stamp convention first
+    zone_gap = longitude / 15.0 - utc_offset     # 15° per hour from the zone's meridian
+    if (not whole_hours and abs(shift) >= 8.0) or abs(zone_gap) > 2.5:
+        fixes.append(f"[site] longitude (Rg is {abs(shift):.0f} min off the sun, "
+                     f"{abs(shift) / 4.0:.1f}° of longitude at 4 min per degree: check the "
+                     "tower's longitude, degrees east)")
     # latitude and longitude swapped: the sun is timed at the latitude's value taken as
     # a longitude, 4 min per degree from the true one
     if (latitude is not None and abs(longitude) <= 90.0 and abs(longitude - latitude) >= 2.5
@@ -663,6 +706,7 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
         status = "hemisphere" if hemisphere == "mismatch" else "cannot_judge"
         return ClockVerdict(status, np.nan, np.nan, len(used), None, tuple(problems),
                             tuple(notes), hemisphere, months)
+    used = _unwrapped_shifts(used)
     shifts = used["shift_minutes"].to_numpy()
     median = float(np.median(shifts))
     spread = float(1.4826 * np.median(np.abs(shifts - median)))

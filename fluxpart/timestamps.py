@@ -116,7 +116,15 @@ def _to_datetime(text: pd.Series, time_format: str, utc: bool) -> pd.Series:
             return fixed
     try:
         return pd.to_datetime(text, format=time_format, errors="coerce", utc=utc)
-    except (ValueError, TypeError) as error:
+    except (ValueError, TypeError, re.error) as error:
+        repeated = sorted({code for code in re.findall(r"%([A-Za-z])", time_format)
+                           if time_format.count(f"%{code}") > 1})
+        if repeated:
+            months = " (%m is the month, %M the minute)" if {"m", "M"} & set(repeated) else ""
+            raise TimestampError(
+                f"[input] time_format = {setting_text(time_format)} cannot be used: it repeats "
+                f"{', '.join('%' + code for code in repeated)}; each field may appear once"
+                f"{months}") from None
         hint = ""
         if "%s" in time_format:
             hint = ("; %s (Unix time, seconds since 1970 UTC) is not read: write the column "

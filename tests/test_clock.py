@@ -92,6 +92,33 @@ def test_file_in_local_time_declared_utc_names_the_offset():
     assert verdict.suggested_utc_offset == 10.0
 
 
+def test_utc_offset_of_the_wrong_sign_near_twelve_hours_is_one_shift():
+    """A site at 94.8° W in UTC-6 declared UTC+6: the stamps are 12 h off, so month by
+    month the shift reads about +715 or -720 min (a day wraps at ±12 h). Unwrapped around
+    its circular mean it is one shift, and the fix named is utc_offset = -6; before, the
+    months on either side of the wrap were called a clock off in part of the record
+    (review, 0.12.0)."""
+    rg = synthetic_rg(38.0, -94.8, -6.0, interval_minutes=30, seed=7)
+    verdict = _check(rg, 38.0, -94.8, 6.0, 30)
+    assert verdict.status == "shifted"
+    assert abs(abs(verdict.shift_minutes) - 720.0) < 10.0
+    assert verdict.suggested_utc_offset == -6.0
+    assert "utc_offset = -6" in verdict.problems[0]
+
+
+def test_mistyped_longitude_is_named_not_an_offset_no_zone_uses():
+    """A tower at 10.2° E configured at 20.2° E: the sun is expected 40 min early (4 min
+    per degree), so Rg comes 40 min late. No time zone is UTC+1:45, so the fix named is
+    the longitude, not utc_offset = 1.75 as before (review, 0.12.0)."""
+    rg = synthetic_rg(49.3, 10.2, 1.0, interval_minutes=30, seed=8)
+    verdict = _check(rg, 49.3, 20.2, 1.0, 30)
+    assert verdict.status == "shifted"
+    assert abs(verdict.shift_minutes - 40.0) < 8.0
+    assert verdict.suggested_utc_offset is None
+    assert "[site] longitude" in verdict.problems[0]
+    assert "utc_offset = 1.75" not in verdict.problems[0]
+
+
 def test_end_stamps_read_as_start_name_time_marks():
     """Stamps that mark interval ends read as starts: one record late; time_marks is named."""
     # the reader's convention (fluxpart.io): "end" stamps are shifted back one interval

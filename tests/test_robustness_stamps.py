@@ -176,6 +176,17 @@ def test_percent_s_format_says_unix_time_is_not_read():
         _parse(_numeric_stamps("unix"), "%s", columns=("stamp",))
 
 
+@pytest.mark.parametrize("time_format, repeated", [("%Y%M%d%H%M", "%M"),
+                                                   ("%Y-%m-%d %H:%m", "%m"),
+                                                   ("%Y%Y%m%d%H%M", "%Y")])
+def test_a_format_repeating_a_field_is_one_error(time_format, repeated):
+    """%M written for %m (a common typo) repeats a field: one error naming the setting and
+    the field, not a traceback from the regular-expression engine (review, 0.12.0)."""
+    with pytest.raises(TimestampError, match=r"time_format = .* cannot be used: it repeats "
+                       + repeated + r"; each field may appear once"):
+        _parse(_numeric_stamps("unix"), time_format, columns=("stamp",))
+
+
 def test_ordinary_numbers_are_not_named_a_clock():
     """Integer stamps of the %Y%m%d%H%M kind that fail for another reason get no clock hint."""
     with pytest.raises(TimestampError) as caught:
