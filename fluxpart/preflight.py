@@ -66,10 +66,16 @@ _CONSTANT = {
     "rg": ("night mask and daytime light response", True),
     "tair": ("nighttime partitioning (Lloyd–Taylor E0)", True),
     "tsoil": ("nighttime partitioning (Lloyd–Taylor E0)", True),
-    # a constant u* is "detected" as its own value and filters nothing: named apart from the
-    # detector's fall-back findings (which the run reports itself) so the run warns of it
-    "ustar": ("u* filter", False),
+    # a constant u* is "detected" as its own value and filters nothing, so calm nights
+    # would enter the budget unfiltered with a u* uncertainty of 0: the run stops
+    # (since 0.12.0; before, it only warned)
+    "ustar": ("u* filter", True),
     "vpd": ("daytime VPD limitation and gap filling", False),
+}
+_CONSTANT_CONSEQUENCE = {
+    "ustar": (" (a constant u* is its own threshold and filters no calm night: the budget "
+              "would take every night's flux as measured and state no u* uncertainty); map "
+              "the measured friction velocity as ustar"),
 }
 _DISTINCT_VALUES = 3          # fewer distinct present values than this is "constant"
 # Stuck sensors (our choice): a variable repeating one value over this many days of
@@ -145,7 +151,7 @@ def _constant(frame: pd.DataFrame, temperature: str) -> list:
             findings.append(Finding(stage, (
                 f"{name} is constant ({present.size} values, all {shown}): a stuck or "
                 f"unconnected sensor, or a placeholder column; the stage needs a varying "
-                f"{name}"), fatal))
+                f"{name}{_CONSTANT_CONSEQUENCE.get(name, '')}"), fatal))
     return findings
 
 

@@ -12,6 +12,7 @@ import pytest
 
 from fluxpart import demo
 from fluxpart.cli import main
+from fluxpart.errors import InsufficientDataError
 from fluxpart.io import _potential
 from fluxpart.preflight import _stuck
 
@@ -103,19 +104,19 @@ def test_run_error_starts_with_the_night_mask(tmp_path, capsys):
     assert len(err) == 1 and err[0].startswith("error: night mask: Rg is at or above")
 
 
-def test_constant_ustar_is_among_the_run_warnings(year):
+def test_constant_ustar_stops_the_run(year):
     """A u* column stuck at one value (fact of the trade: turbulence never holds u* still)
-    is "detected" as its own threshold and filters nothing; `run` printed no warning, since
-    the run dropped every u* finding of the preflight as one it reports itself."""
-    from fluxpart import FluxpartWarning
+    is "detected" as its own threshold and filters nothing: every calm night would enter
+    the budget as measured, with a u* uncertainty of 0. Before 0.12.0 the run only warned
+    (a review measured NEE -279 against -242 g C m-2 with the real u*, outside the stated
+    interval); now it stops naming the column and the consequence."""
     from fluxpart.pipeline import process
 
     frame, site, _ = year
     stuck = frame.assign(ustar=np.where(frame["ustar"].notna(), 0.3, np.nan))
-    with pytest.warns(FluxpartWarning, match="ustar is constant"):
-        result = process(stuck, site)
-    named = [w for w in result.warnings if "ustar is constant" in w]
-    assert len(named) == 1 and named[0].startswith("u* filter:")
+    with pytest.raises(InsufficientDataError, match=r"ustar is constant .*filters no calm "
+                       r"night.*map the measured friction velocity as ustar"):
+        process(stuck, site)
 
 
 @pytest.mark.parametrize("days, found", [(20, False), (31, True)])
