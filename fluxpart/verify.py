@@ -192,6 +192,10 @@ class VerifyReport:
     notes : tuple of str
         Facts that are not failures (a site config rebuilt from the manifest, file
         bytes that differ with equal values).
+    identity : str
+        Which result the folder holds, from its manifest: seed, input and site config
+        (name and SHA-256 prefix) and the release that wrote it (after an interrupted
+        run the folder holds the earlier or the new result; this says which).
     """
 
     directory: Path
@@ -203,6 +207,7 @@ class VerifyReport:
     code_changed: bool = False
     exact: bool = False
     notes: tuple = field(default=())
+    identity: str = ""
 
     @property
     def identical(self) -> bool:
@@ -269,6 +274,8 @@ class VerifyReport:
                                          for d in failures + list(self.rounding)):
                 lines.append("likely cause: the product's code differs from the code that "
                              "wrote the result (code fingerprint changed; see below)")
+        if self.identity:
+            lines.append(f"result: {self.identity}")
         lines += [f"environment: {e}" for e in self.environment]
         lines += [f"note: {n}" for n in self.notes]
         lines.append("Caution: reproduced numbers show the result follows from the recorded "
@@ -483,6 +490,39 @@ def _environment(manifest: dict) -> tuple[list[str], bool]:
     if differing:
         out.append("platform differs in " + "; ".join(differing))
     return out, code_changed
+
+
+def result_identity(manifest: dict) -> str:
+    """Which result a manifest describes, in one line: seed, input, site config, release.
+
+    Parameters
+    ----------
+    manifest : dict
+        A result folder's manifest (:func:`fluxpart.manifest.read_manifest`).
+
+    Returns
+    -------
+    str
+        For example ``seed 0; input tower.csv (sha256 a266f768b503...); site config
+        site.toml (sha256 79a5889d4710...); written by fluxpart 0.12.0``; parts not
+        recorded are left out.
+    """
+    parts = []
+    if "seed" in manifest:
+        parts.append(f"seed {manifest['seed']}")
+    provenance = manifest.get("provenance") if isinstance(manifest.get("provenance"), dict) \
+        else {}
+    if "demo" in provenance:
+        parts.append("the invented demo site")
+    for key, label in (("input", "input"), ("site_config", "site config")):
+        entry = provenance.get(key)
+        if isinstance(entry, dict) and entry.get("sha256"):
+            name = Path(str(entry.get("path", "?"))).name
+            parts.append(f"{label} {name} (sha256 {str(entry['sha256'])[:12]}...)")
+    code = manifest.get("code") if isinstance(manifest.get("code"), dict) else {}
+    if code.get("version"):
+        parts.append(f"written by fluxpart {code['version']}")
+    return "; ".join(parts)
 
 
 # --------------------------------------------------------------------------- inputs
@@ -723,13 +763,14 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
             differences.append(Difference(name, "file", stored=entry["file"],
                                           recomputed=f"is unreadable: {error}"))
     environment, code_changed = _environment(manifest)
+    identity = result_identity(manifest)
     provenance = manifest["provenance"]
     if "demo" not in provenance and not (isinstance(provenance.get("input"), dict)
                                          and isinstance(provenance.get("site_config"), dict)):
         # written from Python (Result.write) without an input file: only the folder's
         # integrity can be checked, and a tampered folder is still a failed verification
         if differences:
-            return VerifyReport(directory=directory, source="none",
+            return VerifyReport(directory=directory, identity=identity, source="none",
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(differences), environment=tuple(environment),
                                 code_changed=code_changed, exact=exact, notes=())
@@ -749,13 +790,13 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
             # the folder fails its own manifest (seal, a table's SHA-256, a file missing
             # or extra): that verdict needs no input, so a result folder handed on without
             # its input is still found tampered (exit 1), not only asked for --input
-            return VerifyReport(directory=directory, source="none",
+            return VerifyReport(directory=directory, identity=identity, source="none",
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(differences),
                                 environment=tuple(environment), code_changed=code_changed,
                                 exact=exact, notes=(*notes, f"not recomputed: {error}"))
         if result is None:
-            return VerifyReport(directory=directory, source=source,
+            return VerifyReport(directory=directory, identity=identity, source=source,
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(input_differences + differences),
                                 environment=tuple(environment), code_changed=code_changed,
@@ -789,7 +830,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                               != manifest["tables"][name].get("sha256")):
                 notes.append(f"{name}: values bit-identical, file bytes differ from the "
                              "recorded ones (library versions?)")
-    return VerifyReport(directory=directory, source=source, tables=tuple(names),
+    return VerifyReport(directory=directory, identity=identity, source=source, tables=tuple(names),
                         differences=tuple(differences), rounding=tuple(rounding),
                         environment=tuple(environment), code_changed=code_changed,
                         exact=exact, notes=tuple(notes))
@@ -812,6 +853,9 @@ def command_verify(args) -> int:
                     exact=bool(getattr(args, "exact", False)))
     lines = report.format().splitlines()
     # --quiet: the verdict and the caution, without the per-column detail
-    print("\n".join([lines[0], lines[-1]] if getattr(args, "quiet", False) else lines))
+    if getattr(args, "quiet", False):
+        identity = [line for line in lines if line.startswith("result: ")]
+        lines = [lines[0].rstrip(":"), *identity, lines[-1]]
+    print("\n".join(lines))
     return report.exit_code
 

@@ -70,11 +70,26 @@ def test_untouched_result_is_bit_identical(bundle, capsys):
 
 
 def test_quiet_verify_prints_only_the_verdict_with_the_same_exit(bundle, capsys):
-    """`fluxpart verify DIR --quiet` prints the verdict and the caution only, same exit."""
+    """`fluxpart verify DIR --quiet` prints the verdict, which result it is and the caution
+    only, same exit."""
     assert main(["verify", str(bundle / "out"), "--quiet"]) == 0
     out = capsys.readouterr().out
-    assert out.startswith("bit-identical") and out.count("\n") == 2
-    assert out.splitlines()[1].startswith("Caution:") and "not a certified credit" in out
+    assert out.startswith("bit-identical") and out.count("\n") == 3
+    assert out.splitlines()[1].startswith("result: seed 0; input tower.csv (sha256 ")
+    assert out.splitlines()[2].startswith("Caution:") and "not a certified credit" in out
+
+
+def test_verify_names_which_result_the_folder_holds(bundle, tmp_path, capsys):
+    """After an interrupted run a folder holds the earlier or the new result, never a mix;
+    verify names which from the manifest: seed, input and config with their SHA-256, and
+    the release (review, 0.12.0). The SHA-256 prefixes equal hashlib's of the files."""
+    import hashlib
+
+    assert main(["verify", str(bundle / "out")]) == 0
+    line = next(x for x in capsys.readouterr().out.splitlines() if x.startswith("result: "))
+    digest = hashlib.sha256((bundle / "tower.csv").read_bytes()).hexdigest()
+    assert f"input tower.csv (sha256 {digest[:12]}...)" in line
+    assert line.startswith("result: seed 0;") and "written by fluxpart " in line
 
 
 def test_moved_bundle_verifies_without_options(bundle, tmp_path):
