@@ -53,6 +53,7 @@ from .errors import (
     ConfigError,
     FluxpartError,
     FluxpartWarning,
+    InputFileError,
     InsufficientDataError,
     MissingColumnError,
     SpacingError,
@@ -958,13 +959,24 @@ def process_site_config(path, config: Config | None = None, *, progress=None,
     """
     import hashlib
 
+    from .fingerprint import code_fingerprint
     from .io import read_site_config
 
     given = None if input_path is None else (
         input_path if isinstance(input_path, (list, tuple)) else [input_path])
+    # the code that runs is the code loaded now (the fingerprint is cached per process):
+    # an edit to the package's files during the run must not be recorded as its code
+    code_fingerprint()
     site_config = read_site_config(path, input_paths=given)
     config_bytes = Path(path).read_bytes()
+    input_before = site_config.input_record()
     frame, report = site_config.read()
+    input_record = site_config.input_record()
+    if input_record != input_before:
+        raise InputFileError(
+            f"[input] path: {site_config.input_path} changed while it was read (its SHA-256 "
+            "differs before and after); the result would record another file than the one "
+            "computed from: rerun once the file is complete (a logger or copy still writing?)")
     from_file = Config.from_toml(path)
     config = from_file if config is None else config
     provenance = {
@@ -975,6 +987,6 @@ def process_site_config(path, config: Config | None = None, *, progress=None,
         "site_config": {"path": str(Path(path).resolve()),
                         "sha256": hashlib.sha256(config_bytes).hexdigest(),
                         "text": config_bytes.decode("utf-8", errors="replace")},
-        "input": site_config.input_record(),
+        "input": input_record,
     }
     return process(frame, site_config.site, config, provenance=provenance, progress=progress)

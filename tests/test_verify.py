@@ -399,3 +399,56 @@ def test_manifest_records_the_running_code_version():
     from fluxpart.manifest import library_versions
 
     assert library_versions()["fluxpart"] == fluxpart.__version__
+
+
+def test_input_changing_while_read_is_refused(tmp_path, monkeypatch):
+    """A file that changes between the reader's pass and the SHA-256 recorded for it (a
+    logger or a copy still writing) would record another file than the one computed from,
+    so no file could ever verify the result: the run stops naming [input] path (review,
+    0.12.0: 2 of 6 runs racing a file swap recorded the other file's SHA-256)."""
+    from fluxpart.io import SiteConfig
+
+    config = make_bundle(tmp_path)
+    real_read = SiteConfig.read
+
+    def read_then_append(self, **kwargs):
+        result = real_read(self, **kwargs)
+        with open(self.input_path, "a", encoding="utf-8") as handle:
+            handle.write("\n")
+        return result
+
+    monkeypatch.setattr(SiteConfig, "read", read_then_append)
+    with pytest.raises(InputFileError, match=r"\[input\] path: .*tower.csv changed while it "
+                       r"was read"):
+        process_site_config(config)
+
+
+def test_code_fingerprint_is_taken_before_the_run(tmp_path, monkeypatch):
+    """The recorded code fingerprint is the code loaded when the run started: it is cached
+    per process and first computed at the start of process_site_config, so a package file
+    edited during the run is not recorded as the code that ran (review, 0.12.0)."""
+    import fluxpart.fingerprint as fingerprint
+
+    fingerprint._package_digest.cache_clear()
+    config = make_bundle(tmp_path)
+    calls = []
+    real = fingerprint._package_digest.__wrapped__
+
+    def counted(package_dir):
+        calls.append(package_dir)
+        return real(package_dir)
+
+    monkeypatch.setattr(fingerprint, "_package_digest",
+                        fingerprint.lru_cache(maxsize=1)(counted))
+    from fluxpart.io import SiteConfig
+    real_read = SiteConfig.read
+
+    def read_and_check(self, **kwargs):
+        assert calls, "the fingerprint must be taken before the input is read"
+        return real_read(self, **kwargs)
+
+    monkeypatch.setattr(SiteConfig, "read", read_and_check)
+    folder = process_site_config(config).write(tmp_path / "out")
+    assert len(calls) == 1          # written with the fingerprint taken at the start
+    manifest = json.loads((folder / "manifest.json").read_text(encoding="utf-8"))
+    assert manifest["code"]["sha256"] == real(calls[0])[0]
