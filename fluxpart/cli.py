@@ -228,15 +228,20 @@ def _command_run(args) -> int:
     from .config import Config
     from .io import read_site_config
     from .pipeline import process_site_config
+    from .resultdir import DEFAULT_LOCK_TIMEOUT, folder_lock
 
     config = Config.from_toml(args.config)
     out = Path(args.out) if args.out else Path(args.config).with_suffix("").parent / (
         Path(args.config).stem + "-output")
     _check_output_folder(out, lambda: read_site_config(args.config).site.name)
     bar, advance = _progress_bar(config, args.quiet)
-    with bar:
-        result = process_site_config(args.config, config, progress=advance)
-    result.write(out)
+    # the folder's lock is held from the start: a second run into the same --out waits
+    # for this one (saying so on stderr) instead of computing alongside and overwriting it
+    out.absolute().parent.mkdir(parents=True, exist_ok=True)
+    with folder_lock(out, DEFAULT_LOCK_TIMEOUT, remove=True):
+        with bar:
+            result = process_site_config(args.config, config, progress=advance)
+        result.write(out, lock_held=True)
     print(f"fluxpart run: {result.site.name}, {len(result.timeseries)} records")
     print()
     print(_format_annual(result.annual))

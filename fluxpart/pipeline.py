@@ -175,12 +175,14 @@ class Result:
         tables["screening"] = counts
         return tables
 
-    def write(self, directory, *, lock_timeout: float | None = None) -> Path:
+    def write(self, directory, *, lock_timeout: float | None = None,
+              lock_held: bool = False) -> Path:
         """Write the tables and ``manifest.json`` to `directory`, replacing it as a whole.
 
         See :func:`fluxpart.resultdir.write_folder`: the folder holds either the
         earlier result or this one, never a mix; a second writer of the same
-        folder waits up to `lock_timeout` seconds (default 600). Returns the folder.
+        folder waits up to `lock_timeout` seconds (default 600); `lock_held`: the
+        caller holds the folder's lock already. Returns the folder.
         """
         from .resultdir import DEFAULT_LOCK_TIMEOUT, write_folder
 
@@ -188,7 +190,7 @@ class Result:
                             config=self.config.to_dict(), seed=self.config.seed,
                             provenance=self.provenance, warnings=self.warnings,
                             lock_timeout=DEFAULT_LOCK_TIMEOUT if lock_timeout is None
-                            else lock_timeout)
+                            else lock_timeout, lock_held=lock_held)
 
 
 _TABLES = ("timeseries", "daily", "monthly", "annual", "ustar", "audit")

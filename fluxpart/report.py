@@ -33,7 +33,9 @@ import base64
 import gc
 import html
 import inspect
+import os
 import re
+from contextlib import nullcontext
 from pathlib import Path
 
 import numpy as np
@@ -52,7 +54,7 @@ from .figures import (
     window_status,
 )
 from .manifest import CAUTION
-from .resultdir import read_folder
+from .resultdir import DEFAULT_LOCK_TIMEOUT, folder_lock, read_folder
 from .store import atomic_write_bytes
 from .units import CARBON_UNIT, FLUX_UNIT, T_CO2_HA_PER_G_C_M2, display_unit
 
@@ -903,7 +905,15 @@ def command_report(args) -> int:
     gc.disable()
     try:
         _matplotlib(setter_docs=False)
-        with Progress(len(FIGURES) + 1, "fluxpart report", enabled=enabled) as progress:
+        # the result folder's lock is held while a page inside it is read and written: a
+        # run replacing the folder meanwhile would leave a page describing the result
+        # before (where the lock file can be made: a read-only copy is not written to)
+        directory = Path(args.directory)
+        inside = getattr(args, "out", None) is None and os.access(
+            directory.absolute().parent, os.W_OK)
+        with (folder_lock(directory, DEFAULT_LOCK_TIMEOUT, remove=True) if inside
+              else nullcontext()), \
+                Progress(len(FIGURES) + 1, "fluxpart report", enabled=enabled) as progress:
             path = build_report(args.directory, getattr(args, "out", None),
                                 progress=progress.advance)
     finally:

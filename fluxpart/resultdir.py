@@ -42,7 +42,7 @@ import shutil
 import socket
 import sys
 import tempfile
-from contextlib import contextmanager
+from contextlib import contextmanager, nullcontext
 from dataclasses import dataclass
 from datetime import datetime, timezone
 from pathlib import Path
@@ -398,7 +398,8 @@ def run_log_record(directory: Path, provenance: dict) -> dict:
 
 
 def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, provenance: dict,
-                 warnings=(), lock_timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None) -> Path:
+                 warnings=(), lock_timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None,
+                 lock_held: bool = False) -> Path:
     """Write result tables and their manifest to `directory`, replacing it as a whole.
 
     Parameters
@@ -423,6 +424,10 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
         Seconds to wait for another writer of the same folder (0: refuse at once).
     notify : callable, optional
         Where the "waiting for another writer" line goes (default stderr).
+    lock_held : bool, optional
+        The caller holds the folder's :func:`folder_lock` already (``fluxpart run``
+        takes it before computing, so a second run into the same folder waits for
+        the first rather than computing alongside and replacing it); default False.
 
     Returns
     -------
@@ -448,7 +453,8 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
     except OSError as error:
         raise OutputError(f"cannot create the output folder's parent {str(directory.parent)!r}: "
                           f"{error.strerror or error}") from None
-    with folder_lock(directory, lock_timeout, notify, remove=True):
+    with (nullcontext() if lock_held else folder_lock(directory, lock_timeout, notify,
+                                                      remove=True)):
         clean_leftovers(directory)
         reason = _is_replaceable(directory, site_name)
         if reason:

@@ -779,6 +779,11 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                              "config (fluxpart run) nor a demo seed (fluxpart demo), so the "
                              "result cannot be recomputed")
     notes, rounding = [], []
+    if (directory / "report").exists():
+        notes.append("report/: the page and its figures are drawn from the tables and are not "
+                     "covered by the manifest's hashes, so they are not verified; redraw them "
+                     "from the verified tables with `fluxpart report` rather than trusting a "
+                     "received page")
     with tempfile.TemporaryDirectory(prefix="fluxpart-verify-") as scratch:
         scratch = Path(scratch)
         try:

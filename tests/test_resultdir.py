@@ -358,3 +358,25 @@ def test_platform_record_does_not_depend_on_importing_scipy():
     first, second = json.loads(done.stdout)
     assert first == second
     assert any(entry["user_api"] == "blas" for entry in first["blas"])
+
+
+def test_run_waits_for_a_folder_locked_before_it_starts(tmp_path, capsys):
+    """``fluxpart run`` holds the folder's lock from its start, not only while writing:
+    a second run into the same --out waits for the first, saying so on stderr, instead of
+    computing alongside and replacing its result unseen (review, 0.12.0: the run that
+    finished last won, the other operator's result was lost without notice)."""
+    from fluxpart.cli import main
+
+    config = make_bundle(tmp_path)
+    out = tmp_path / "out"
+    holder = folder_lock(out)
+    holder.__enter__()
+    releaser = threading.Timer(1.0, holder.__exit__, args=(None, None, None))
+    releaser.start()
+    started = time.monotonic()
+    assert main(["run", str(config), "--out", str(out), "--quiet"]) == 0
+    waited = time.monotonic() - started
+    releaser.join()
+    assert "waiting" in capsys.readouterr().err
+    assert waited >= 0.9
+    assert fluxpart.load(out).annual.shape[0] >= 1

@@ -452,3 +452,16 @@ def test_code_fingerprint_is_taken_before_the_run(tmp_path, monkeypatch):
     assert len(calls) == 1          # written with the fingerprint taken at the start
     manifest = json.loads((folder / "manifest.json").read_text(encoding="utf-8"))
     assert manifest["code"]["sha256"] == real(calls[0])[0]
+
+
+def test_verify_says_the_report_folder_is_not_verified(bundle, tmp_path, capsys):
+    """A report/ folder is outside the manifest's hashes (it is drawn from the tables):
+    verify says so instead of letting "bit-identical" cover an edited page (review,
+    0.12.0)."""
+    copy = tmp_path / "copy"
+    shutil.copytree(bundle, copy)
+    (copy / "out" / "report").mkdir()
+    (copy / "out" / "report" / "report.html").write_text("<p>edited</p>", encoding="utf-8")
+    assert main(["verify", str(copy / "out")]) == 0
+    out = capsys.readouterr().out
+    assert "note: report/: the page and its figures" in out and "not verified" in out
