@@ -600,7 +600,7 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
         return (f"[site] longitude = {-longitude:g} (the configured {longitude:g} has the "
                 "wrong sign)"), None
     offset = utc_offset + round(hours * 4.0) / 4.0          # offsets come in quarter hours
-    if offset > 14.0:          # a shift is known modulo a day: the zone 24 h earlier
+    if offset > 14.0:          # a shift is known modulo a day: zones run from -12 to +14 h
         offset -= 24.0
     elif offset < -12.0:
         offset += 24.0
@@ -609,8 +609,7 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
     suggested = None
     whole_hours = abs(shift - round(hours) * 60.0) <= 15.0
     used_offset = float(offset).is_integer() or offset in _FRACTIONAL_UTC_OFFSETS
-    if (abs(offset - utc_offset) >= 0.5 and residual_offset <= 15.0 and -12 <= offset <= 14
-            and used_offset):
+    if abs(offset - utc_offset) >= 0.5 and residual_offset <= 15.0 and used_offset:
         fixes.append(f"[site] utc_offset = {offset:g} (stamps in UTC{offset:+g} h rather than "
                      f"UTC{utc_offset:+g} h)")
         suggested = float(offset)
