@@ -295,6 +295,9 @@ RANDOM_ERROR_MODEL_COLUMNS: dict[str, tuple[str, str]] = {
     "correlated_variance_long": ("umol2 m-4 s-2", "gap filling: error variance shared by "
                                  "every record of a gap longer than one day (b for such gaps, "
                                  "scored on artificial gaps of the site's own long gap lengths)"),
+    "block_covariance_long": ("umol2 m-4 s-2", "gap filling: error covariance of two filled "
+                              "records of one class in different 7-day blocks of one gap "
+                              "longer than one day"),
     "neighbour_covariance": ("umol2 m-4 s-2", "gap filling: error covariance of two filled "
                              "records of one class (night or day) in different gaps at most 7 days apart"),
     "gaps": ("1", "artificial gaps scored"),

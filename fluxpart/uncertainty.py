@@ -802,11 +802,15 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
         from the gap's start) and record class: ``round``, ``gap`` (number of the
         gap, or of the block, in the round), ``records`` (held-out measured
         records of the class), ``length`` (records in the whole gap),
-        ``error_sum`` (Σ fill − measured [µmol m-2 s-1]), ``noise_variance``
+        ``size_records`` (Σ max(|fill| / r, 1) over them [1], r =
+        ``size_reference``, the class's mean |NEE| over its measured records
+        [µmol m-2 s-1]), ``error_sum`` (Σ fill − measured [µmol m-2 s-1]),
+        ``noise_variance``
         (Σ σ² of the measured values [(µmol m-2 s-1)²]), ``long`` (the row
-        belongs to a round of gaps longer than one day) and ``start_day`` (the
+        belongs to a round of gaps longer than one day), ``start_day`` (the
         gap's, or block's, first record [days from the first record]; NaN
-        without `records_per_day`).
+        without `records_per_day`) and ``parent`` (number of the gap in its
+        round that the row's gap or block lies in).
 
     Notes
     -----
@@ -850,12 +854,16 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
                              f"nee_measured has {n}")
         # only the pattern inside the real gaps is copied
         hidden_real = hidden_real & ~measured.reshape((n,) + (1,) * (hidden_real.ndim - 1))
-    columns = ["round", "gap", "record_class", "records", "length", "error_sum",
-               "noise_variance", "long", "start_day"]
+    columns = ["round", "gap", "record_class", "records", "length", "size_records",
+               "size_reference", "error_sum", "noise_variance", "long", "start_day", "parent"]
     if real_lengths.size == 0 or measured.sum() < 10:
         return pd.DataFrame(columns=columns)
     rng = np.random.default_rng([int(seed), 2007])
     target = share * measured.sum()
+    # each class's typical flux: the mean |NEE| of its measured records
+    typical = {name: float(np.abs(nee[measured & in_class]).mean())
+               if (measured & in_class).any() else np.nan
+               for name, in_class in (("night", night), ("day", ~night))}
     per_day = np.nan if records_per_day is None else float(records_per_day)
     every_gap = np.arange(real_lengths.size)
     long_gaps = every_gap[real_lengths > per_day] if records_per_day else every_gap[:0]
@@ -890,7 +898,8 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
         unit = _block_ids(mask, int(_NEIGHBOUR_DAYS * per_day)) if is_long else gap_id
         first = np.flatnonzero(np.diff(np.concatenate([[-1], unit])) != 0)
         first = first[unit[first] >= 0]                 # first record of each unit
-        lengths = np.bincount(gap_id[mask])[gap_id[first]]
+        parent = gap_id[first]                          # the gap each unit lies in
+        lengths = np.bincount(gap_id[mask])[parent]
         for name, in_class in (("night", night), ("day", ~night)):
             scored = held & in_class & np.isfinite(filled)
             ids = unit[scored]
@@ -903,11 +912,16 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
                 "record_class": np.full(keep.size, name, dtype=object),
                 "records": count[keep],
                 "length": lengths[keep],
+                "size_records": np.bincount(ids, weights=_fill_size(filled[scored],
+                                                                    typical[name]),
+                                            minlength=lengths.size)[keep],
+                "size_reference": np.full(keep.size, typical[name]),
                 "error_sum": np.bincount(ids, weights=error[scored],
                                          minlength=lengths.size)[keep],
                 "noise_variance": np.bincount(ids, weights=np.square(noise[scored]),
                                               minlength=lengths.size)[keep],
-                "long": np.full(keep.size, is_long), "start_day": first[keep] / per_day})
+                "long": np.full(keep.size, is_long), "start_day": first[keep] / per_day,
+                "parent": parent[keep]})
     if not rows:
         return pd.DataFrame(columns=columns)
     return pd.DataFrame({column: np.concatenate([row[column] for row in rows])
@@ -957,11 +971,36 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
     site-years (their fills come from donors days away or from the diurnal
     course alone), so they get their own b from the rounds of long gaps, each
     scored by blocks of 7 days (rows of :func:`artificial_gap_errors`): within
-    a block the shared error is b_long·m² for its m records, blocks are
-    independent (beyond a week the fills draw on other donors, as for the
-    neighbour covariance below). ``b_long = Σ((S − bias·m)² − Σσ² − a·m) / Σm²``
-    over the blocks, at least b (equal to b where the site has no gap longer
-    than a day).
+    a block the shared error is b_long·m² for its m records (beyond a week the
+    fills draw on other donors, as for the neighbour covariance below).
+    ``b_long = Σ((S − bias·m)² − Σσ² − a·m) / Σm²`` over the blocks, at least b
+    (equal to b where the site has no gap longer than a day).
+
+    Since 0.13.0 two refinements of the long-gap part, both measured on the
+    artificial gaps themselves (before, blocks were independent and every
+    record counted alike):
+
+    - *Blocks of one gap are not independent.* In the middle of a gap of weeks
+      every block is filled from the same distant days (or, where every sensor
+      was out, from the mean diurnal course of other weeks), so their errors
+      share a part. Its covariance d per record pair of two different blocks of
+      one gap is the moment estimate ``Σ_g (T_g² − Σ S_i²) / Σ_g (M_g² − Σ m_i²)``
+      over the artificial long gaps (S_i, m_i a block's centred error sum and
+      records, T_g, M_g the gap's sums; :func:`_between_block_covariance`),
+      within [0, b_long]: ``block_covariance_long``.
+    - *The shared error of a long gap grows with the size of its fills.* A
+      block in the growing season errs by more than one in the dormant season
+      (the fill errors follow the weather and the canopy the donors miss, which
+      act on the flux in proportion to its size, as the random error does,
+      Richardson et al. 2006). Within gaps longer than a day each record counts
+      max(|fill| / r, 1) in place of 1 in the shared parts (b_long, d, ρ_long),
+      r the class's mean |NEE| over its measured records
+      (``size_reference_long``). The floor of 1 keeps a fill smaller than the
+      class's typical flux from claiming a smaller error: a gap that spans a
+      change of the canopy (leaf-out, a harvest) is filled from donors of the
+      other state, so its fills can understate the truth.
+
+    Measured in the contributor guide (changelog 0.13.0).
 
     Night and day records of one gap (or 7-day block) share their errors with
     correlation ρ (short gaps) and ρ_long (the blocks of gaps longer than a day):
@@ -993,6 +1032,10 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
     additional uncertainty in gap-filled NEE resulting from long gaps in the
     CO2 flux record. Agric. For. Meteorol. 147, 199–208.
     doi:10.1016/j.agrformet.2007.06.004
+
+    Richardson, A. D. et al. (2006). A multi-site analysis of random error in
+    tower-based measurements of carbon and energy fluxes. Agric. For. Meteorol.
+    136, 1–18.
     """
     needed = {"record_class", "records", "error_sum", "noise_variance"}
     if not needed <= set(errors.columns):
@@ -1008,6 +1051,7 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
         if count.sum() < _GAP_MIN_RECORDS or len(part) < 3:
             rows[name] = {"bias": np.nan, "bias_se": np.nan, "independent_variance": np.nan,
                           "correlated_variance": np.nan, "correlated_variance_long": np.nan,
+                          "block_covariance_long": np.nan, "size_reference_long": np.nan,
                           "neighbour_covariance": np.nan, "gaps": len(part),
                           "records": int(count.sum()), "long_gap_blocks": len(long_part)}
             continue
@@ -1016,18 +1060,24 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
         # unknown noise (no random-error model) is not subtracted: a and b then hold it too
         excess = np.square(centred) - np.nan_to_num(part["noise_variance"].to_numpy(dtype=float))
         a, b = _nonnegative_line_fit(count, excess / count)
-        b_long = b
+        b_long, reference = b, np.nan
         if len(long_part):
             long_count = long_part["records"].to_numpy(dtype=float)
             long_excess = np.square(long_part["error_sum"].to_numpy(dtype=float)
                                     - bias * long_count) \
                 - np.nan_to_num(long_part["noise_variance"].to_numpy(dtype=float)) \
                 - a * long_count
-            b_long = max(float(long_excess.sum() / np.square(long_count).sum()), b)
+            if "size_reference" in long_part:
+                reference = float(long_part["size_reference"].iloc[0])
+            b_long = max(float(long_excess.sum()
+                               / np.square(_size_records(long_part)).sum()), b)
+        between = _between_block_covariance(long_part, bias)
         rows[name] = {"bias": float(bias),
                       "bias_se": float(np.sqrt(np.square(centred).sum()) / count.sum()),
                       "independent_variance": float(a), "correlated_variance": float(b),
                       "correlated_variance_long": b_long,
+                      "block_covariance_long": min(between, b_long),
+                      "size_reference_long": reference,
                       "neighbour_covariance": _neighbour_covariance(part, bias),
                       "gaps": len(part), "records": int(count.sum()),
                       "long_gap_blocks": len(long_part)}
@@ -1037,17 +1087,40 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
                                       (True, "correlated_variance_long",
                                        "day_night_correlation_long")):
         table[column] = _day_night_correlation(errors[long == is_long], table["bias"],
-                                               table[variance])
+                                               table[variance], sized=is_long)
     return table
 
 
-def _day_night_correlation(errors: pd.DataFrame, bias: pd.Series, shared: pd.Series) -> float:
+def _fill_size(fill, reference) -> np.ndarray:
+    """Size of each fill against the class's typical flux: max(|fill| / reference, 1) [1].
+
+    1 everywhere where `reference` is not a positive number. See
+    :func:`gapfill_error_model`, Notes.
+    """
+    fill = np.abs(np.nan_to_num(np.asarray(fill, dtype=float)))
+    reference = float(reference)
+    if not np.isfinite(reference) or reference <= 0:
+        return np.ones_like(fill)
+    return np.maximum(fill / reference, 1.0)
+
+
+def _size_records(part: pd.DataFrame) -> np.ndarray:
+    """Each row's records counted by the size of their fills (``size_records``), or the
+    records themselves for rows without that column."""
+    column = "size_records" if "size_records" in part else "records"
+    return part[column].to_numpy(dtype=float)
+
+
+def _day_night_correlation(errors: pd.DataFrame, bias: pd.Series, shared: pd.Series,
+                           sized: bool = False) -> float:
     """Correlation of the shared fill errors of the night and the day records of one gap.
 
     Moment estimate over the gaps (or 7-day blocks) scored in both classes: the
     covariance per (night, day) record pair ``Σ S_n S_d / Σ n_n n_d`` of the
     centred error sums, divided by ``√(b_night b_day)`` (`shared`), within
-    [0, 1]; 1 (fully shared, the upper bound) where it cannot be estimated.
+    [0, 1]; 1 (fully shared, the upper bound) where it cannot be estimated. With
+    `sized` (gaps longer than a day), n counts records by the size of their
+    fills (:func:`_size_records`), as b_long does.
     The measurement noise of night and day records is independent, so nothing
     is subtracted from the cross products.
     """
@@ -1056,9 +1129,10 @@ def _day_night_correlation(errors: pd.DataFrame, bias: pd.Series, shared: pd.Ser
     centred = errors["error_sum"].to_numpy(dtype=float) \
         - bias.reindex(errors["record_class"]).to_numpy(dtype=float) \
         * errors["records"].to_numpy(dtype=float)
+    night = (errors["record_class"] == "night").to_numpy()
+    weighted = _size_records(errors) if sized else errors["records"].to_numpy(float)
     table = pd.DataFrame({"round": errors["round"].to_numpy(), "gap": errors["gap"].to_numpy(),
-                          "night": (errors["record_class"] == "night").to_numpy(),
-                          "centred": centred, "records": errors["records"].to_numpy(float)})
+                          "night": night, "centred": centred, "records": weighted})
     pairs = table[table["night"]].merge(table[~table["night"]], on=["round", "gap"],
                                         suffixes=("_night", "_day"))
     weight = float(np.sum(pairs["records_night"] * pairs["records_day"]))
@@ -1067,6 +1141,31 @@ def _day_night_correlation(errors: pd.DataFrame, bias: pd.Series, shared: pd.Ser
         return 1.0
     covariance = float(np.sum(pairs["centred_night"] * pairs["centred_day"])) / weight
     return float(np.clip(covariance / scale, 0.0, 1.0))
+
+
+def _between_block_covariance(part: pd.DataFrame, bias: float) -> float:
+    """Covariance per record pair of the fill errors of two 7-day blocks of one long gap.
+
+    Moment estimate over the blocks of the artificial gaps longer than a day
+    (rows of one class with the same ``round`` and ``parent``):
+    ``Σ_g Σ_{i≠j} S_i S_j / Σ_g Σ_{i≠j} m_i m_j`` of the blocks' centred error sums
+    S and records m, i.e. ``Σ_g (T_g² − Σ S_i²) / Σ_g (M_g² − Σ m_i²)`` with T_g and
+    M_g the gap's sums; m counts records by the size of their fills
+    (:func:`_size_records`). The measurement noise of
+    different blocks is independent, so nothing is subtracted. 0 without the
+    ``parent`` column, without a gap of two blocks, or where negative.
+    """
+    if part.empty or "parent" not in part:
+        return 0.0
+    count = part["records"].to_numpy(dtype=float)
+    centred = part["error_sum"].to_numpy(dtype=float) - bias * count
+    weighted = _size_records(part)
+    key = [part["round"].to_numpy(), part["parent"].to_numpy()]
+    sums = pd.DataFrame({"t": centred, "q": np.square(centred), "m": weighted,
+                         "mm": np.square(weighted)}).groupby(key).sum()
+    numerator = float(np.sum(np.square(sums["t"]) - sums["q"]))
+    denominator = float(np.sum(np.square(sums["m"]) - sums["mm"]))
+    return max(numerator / denominator, 0.0) if denominator > 0 else 0.0
 
 
 def _neighbour_covariance(part: pd.DataFrame, bias: float) -> float:
@@ -1722,7 +1821,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       * for a gap longer than a day, a·n plus b_long·m² per 7-day block of m
         records (since 0.7.0; such gaps are scored on artificial gaps of the
         site's own long lengths, which since 0.9.0 also lack the drivers their
-        real gaps lacked);
+        real gaps lacked), plus d per pair of records in different blocks of the
+        gap, and in both each record counted by the size of its fill,
+        max(|fill| / r, 1) (since 0.13.0; :func:`gapfill_error_model`);
       * the night and the day records of one gap or block share their errors
         with the correlation ρ the artificial gaps show (since 0.9.0; fully
         before): b_n n_n² + b_d n_d² + 2ρ √(b_n b_d) n_n n_d;
@@ -1860,9 +1961,14 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             model = model.assign(correlated_variance_long=model["correlated_variance"])
         if "neighbour_covariance" not in model:
             model = model.assign(neighbour_covariance=0.0)
+        for column, before in (("block_covariance_long", 0.0),    # model tables from
+                               ("size_reference_long", np.nan)):  # before 0.13.0
+            if column not in model:
+                model = model.assign(**{column: before})
         by_class = {name: model[name].reindex(["night", "day"]).to_numpy(dtype=float)
                     for name in ("bias", "bias_se", "independent_variance", "correlated_variance",
-                                 "correlated_variance_long", "neighbour_covariance")}
+                                 "correlated_variance_long", "neighbour_covariance",
+                                 "block_covariance_long", "size_reference_long")}
         pick = {name: np.where(night, values[0], values[1]) for name, values in by_class.items()}
         # a model table from before 0.9.0 has no correlations: fully shared, as then
         correlation, correlation_long = (
@@ -1873,7 +1979,7 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             independent = per_period(np.where(records, pick["independent_variance"], 0.0))
             shared = np.where(long_gap, pick["correlated_variance_long"],
                               pick["correlated_variance"])
-            root = np.where(records, np.sqrt(shared), 0.0)
+            root = np.where(records, np.sqrt(shared) * size, 0.0)
             # per block, N = Σ night √b and D = Σ day √b share N² + D² + 2ρND
             # = (1 − ρ)(N² + D²) + ρ(N + D)² (ρ is one value per block: a block
             # lies in one gap, long or not)
@@ -1882,6 +1988,19 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             correlated = grouped(block_id, np.where(night, apart, 0.0)) \
                 + grouped(block_id, np.where(night, 0.0, apart)) \
                 + grouped(block_id, root * np.sqrt(rho))
+            # different 7-day blocks of one long gap: d per record pair of a class, the
+            # classes mixed with the same ρ_long; Σ over the gap minus Σ over its blocks
+            # leaves the pairs of different blocks
+            spread = np.where(records & long_gap,
+                              np.sqrt(pick["block_covariance_long"]) * size, 0.0)
+            mixed = spread * np.sqrt(1.0 - correlation_long)
+
+            def pairs_within(groups):
+                return grouped(groups, np.where(night, mixed, 0.0)) \
+                    + grouped(groups, np.where(night, 0.0, mixed)) \
+                    + grouped(groups, spread * np.sqrt(correlation_long))
+
+            between_blocks = np.maximum(pairs_within(gap_id) - pairs_within(block_id), 0.0)
             neighbours = per_period(np.where(records, pick["neighbour_covariance"] * _neighbour_pairs(
                 records, night, gap_id, codes, records_per_day), 0.0))
             # a fill averages measured records: 2 cov(fill, the period's measured records)
@@ -1893,8 +2012,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             bias_se = se_night + se_day if shared_estimate else np.hypot(se_night, se_day)
             # E[B²] = (Nμ)² + S²: B² - S² estimates the squared bias (positive part; Notes)
             squared_bias = np.maximum(np.square(bias) - np.square(bias_se), 0.0)
-            return (independent + correlated + neighbours + donors) * factor**2 \
-                + squared_bias, bias, bias_se
+            return (independent + correlated + between_blocks + neighbours + donors) \
+                * factor**2 + squared_bias, bias, bias_se
 
         gap_id = _run_ids(filled)
         records_per_day = _MINUTES_PER_DAY // int(interval_minutes)
@@ -1903,6 +2022,14 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         # a gap of a day or less is one block; a longer one shares its error by 7-day blocks
         block_id = _block_ids(filled, int(_NEIGHBOUR_DAYS * records_per_day))
         donor_noise = _donor_noise(inputs, codes, filled, interval_minutes)
+        # in a gap longer than a day a fill's shared error grows with its size, never
+        # below the class's typical flux (gapfill_error_model, Notes)
+        nee_filled = fluxes["nee"].to_numpy(dtype=float)
+        size = np.ones(len(filled))
+        for in_class, reference in ((night, by_class["size_reference_long"][0]),
+                                    (~night, by_class["size_reference_long"][1])):
+            where = long_gap & in_class
+            size[where] = _fill_size(nee_filled[where], reference)
         gap_var, bias, bias_se = fill_variance(filled)
         gap_var_day = fill_variance(filled & ~night)[0]
     unknown = pd.Series(np.nan, index=index)

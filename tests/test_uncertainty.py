@@ -762,6 +762,42 @@ def test_long_gaps_get_their_own_shared_variance_by_week_blocks():
     assert alone["correlated_variance_long"] == alone["correlated_variance"]
 
 
+def test_blocks_of_one_long_gap_share_a_covariance_recovered_by_moments():
+    """Known truth (invented): the 7-day blocks of one long artificial gap share a gap
+    level of variance d per record pair on top of their own b_long: S_i = sqrt(d) m_i Z_g
+    + sqrt(b_long - d) m_i Z_i + sqrt(a m_i) Z'. The moment estimate
+    Σ_g (T_g² - Σ S_i²) / Σ_g (M_g² - Σ m_i²) (the covariance of sums of different
+    blocks, elementary statistics) recovers d; independent blocks give about 0; rows
+    without the ``parent`` column give 0 (blocks then counted independent, as before
+    0.13.0)."""
+    from fluxpart.uncertainty import _between_block_covariance
+
+    rng = np.random.default_rng(8)
+
+    def rows(d, b_long=0.02, gaps=1500):
+        frames = []
+        for gap in range(gaps):
+            m = np.append(np.full(rng.integers(1, 4), 336), rng.integers(20, 336))
+            level = np.sqrt(d) * rng.standard_normal()
+            total = (level + np.sqrt(b_long - d) * rng.standard_normal(m.size)) * m \
+                + np.sqrt(m) * rng.standard_normal(m.size)
+            frames.append(pd.DataFrame({"round": gap % 6, "gap": np.arange(m.size),
+                                        "parent": gap, "record_class": "night",
+                                        "records": m, "error_sum": total}))
+        return pd.concat(frames, ignore_index=True)
+
+    planted = rows(0.012)
+    assert _between_block_covariance(planted, 0.0) == pytest.approx(0.012, rel=0.2)
+    assert _between_block_covariance(rows(0.0), 0.0) < 0.002
+    assert _between_block_covariance(planted.drop(columns="parent"), 0.0) == 0.0
+    model = gapfill_error_model(pd.concat([_neighbour_rows(rng, 30, 0.0).assign(
+        record_class="night", parent=-1), planted.assign(long=True, noise_variance=0.0,
+                                                         length=700, start_day=np.nan)],
+        ignore_index=True)).loc["night"]
+    assert model["block_covariance_long"] == pytest.approx(0.012, rel=0.2)
+    assert model["block_covariance_long"] <= model["correlated_variance_long"]
+
+
 def test_day_night_correlation_recovers_planted_correlation():
     """Known truth (invented): night and day error sums of each gap share a level with
     correlation rho, S = sqrt(b) m Z. The moment estimate Σ S_n S_d / (Σ m_n m_d
@@ -876,6 +912,79 @@ def test_period_gapfill_part_counts_neighbour_pairs_and_week_blocks():
     out = period_uncertainty(_filled_inputs(index, measured, long_model), np.zeros(n, int), 30)
     assert out["nee_uncertainty_gapfill"].iloc[0] == pytest.approx(
         np.sqrt(0.01 * (336**2 + 144**2)) * grams)
+
+
+def test_period_gapfill_part_adds_the_covariance_of_different_blocks_of_one_gap():
+    """Var(Σ_i S_i) = Σ_i Var S_i + Σ_{i≠j} cov(S_i, S_j) (elementary statistics): a
+    20-day gap of 30-min records is cut into 7-day blocks of 336, 336 and 288 records;
+    with b_long per record pair within a block and d between blocks, the shared
+    variance is b_long Σ m_i² + d ((Σ m_i)² - Σ m_i²). A gap of a day or less, a single
+    block, takes none of d."""
+    from fluxpart.uncertainty import period_uncertainty
+
+    index = pd.date_range("2021-06-01", periods=40 * 48, freq="30min")
+    n = len(index)
+    grams = 1800 * 12.011e-6
+    model = _error_model(correlated_variance_long=[0.01, 0.01], neighbour_covariance=[0.0, 0.0],
+                         block_covariance_long=[0.004, 0.004])
+    measured = np.ones(n, dtype=bool)
+    measured[100:100 + 960] = False
+    out = period_uncertainty(_filled_inputs(index, measured, model), np.zeros(n, int), 30)
+    blocks = np.array([336.0, 336.0, 288.0])
+    shared = 0.01 * np.sum(blocks**2) + 0.004 * (blocks.sum() ** 2 - np.sum(blocks**2))
+    assert out["nee_uncertainty_gapfill"].iloc[0] == pytest.approx(np.sqrt(shared) * grams,
+                                                                     rel=1e-12)
+    short = np.ones(n, dtype=bool)
+    short[100:140] = False
+    alone = period_uncertainty(_filled_inputs(index, short, model.assign(
+        block_covariance_long=0.0)), np.zeros(n, int), 30)
+    assert period_uncertainty(_filled_inputs(index, short, model), np.zeros(n, int), 30)[
+        "nee_uncertainty_gapfill"].iloc[0] == alone["nee_uncertainty_gapfill"].iloc[0]
+
+
+def test_long_gap_shared_error_grows_with_the_size_of_its_fills_not_below_typical():
+    """Var(c Σ e) = c² Var(Σ e) (elementary statistics): in a 5-day gap (one block of
+    240 records) whose fills are 3 times the class's typical |NEE| r, each record
+    counts 3 in the shared part, so its standard deviation triples; fills smaller
+    than r count 1 (the floor), as do gaps of a day or less."""
+    from dataclasses import replace
+
+    from fluxpart.uncertainty import period_uncertainty
+
+    index = pd.date_range("2021-06-01", periods=20 * 48, freq="30min")
+    n = len(index)
+    grams = 1800 * 12.011e-6
+    model = _error_model(correlated_variance_long=[0.01, 0.01], neighbour_covariance=[0.0, 0.0],
+                         size_reference_long=[2.0, 2.0])
+    measured = np.ones(n, dtype=bool)
+    measured[100:100 + 240] = False
+
+    def sigma(fill, mask=measured):
+        inputs = _filled_inputs(index, mask, model)
+        fluxes = inputs.fluxes.assign(nee=fill)
+        out = period_uncertainty(replace(inputs, fluxes=fluxes), np.zeros(n, int), 30)
+        return out["nee_uncertainty_gapfill"].iloc[0]
+
+    plain = np.sqrt(0.01) * 240 * grams
+    assert sigma(np.full(n, -6.0)) == pytest.approx(3 * plain, rel=1e-12)
+    assert sigma(np.full(n, 0.5)) == pytest.approx(plain, rel=1e-12)
+    short = np.ones(n, dtype=bool)
+    short[100:120] = False
+    assert sigma(np.full(n, -6.0), short) == sigma(np.full(n, 0.5), short)
+
+
+def test_artificial_gaps_count_records_by_the_size_of_their_fills():
+    """size_records = Σ max(|fill| / r, 1) over a row's scored records, r the class's
+    mean |NEE| over its measured records (the definition; arithmetic checked by hand
+    on a constant series: |NEE| 2 measured, fills of 6 count 3 each)."""
+    n = 2000
+    nee = np.full(n, 2.0)
+    nee[500:700] = np.nan                                  # a real 200-record gap
+    night = np.zeros(n, dtype=bool)
+    rows = artificial_gap_errors(nee, np.zeros(n), night, lambda values, hidden: np.where(
+        np.isfinite(values), values, 6.0), seed=2, records_per_day=48)
+    assert (rows["size_reference"] == 2.0).all()
+    np.testing.assert_allclose(rows["size_records"], 3.0 * rows["records"])
 
 
 def test_period_gapfill_part_shares_night_and_day_errors_by_their_correlation():
