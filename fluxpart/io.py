@@ -185,6 +185,9 @@ class ReadReport:
     unit_refusals : tuple of str
         Unit or plausibility problems that stop ``run``, when read with
         ``unit_problems="report"`` (as ``fluxpart check`` does); also in `warnings`.
+    header_trailing_delimiter : int
+        Files whose header line ends with a delimiter (an empty last name) that their
+        data lines lack; the empty name was ignored.
     """
 
     source: str
@@ -216,6 +219,7 @@ class ReadReport:
     storage_missing: int = 0
     accepted_units: tuple = ()
     unit_refusals: tuple = ()
+    header_trailing_delimiter: int = 0
 
     def __str__(self) -> str:
         files = self.files or (self.source,)
@@ -236,6 +240,10 @@ class ReadReport:
             "(interval starts)",
             f"records read      {self.records_read}",
         ]
+        if self.header_trailing_delimiter:
+            lines.append(f"header            ends with a delimiter the data lines lack (an empty "
+                         f"last name) in {self.header_trailing_delimiter} of {len(files)} "
+                         "file(s): the empty name was ignored")
         if self.duplicate_rows or self.merged_rows:
             lines.append(f"rows dropped      {self.duplicate_rows} exact duplicate(s) within a "
                          f"file, {self.merged_rows} identical in overlapping files")
@@ -293,6 +301,9 @@ class ReadReport:
             "accepted_units": list(self.accepted_units),
             "unit_refusals": list(self.unit_refusals),
             "derived": list(self.derived), "warnings": list(self.warnings),
+            # only where it happened: earlier manifests have no such key
+            **({"header_trailing_delimiter": self.header_trailing_delimiter}
+               if self.header_trailing_delimiter else {}),
         }
 
 
@@ -876,6 +887,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         encodings=tuple(part["encoding"] for part in parts),
         duplicate_rows=combined["duplicate_rows"],
         merged_rows=combined["merged_rows"],
+        header_trailing_delimiter=combined["header_trailing_delimiter"],
         stamp_conversions=combined["conversions"] | (
             {"time_zone": time_zone} if time_zone else {}),
         nonfinite_cells={name: combined["nonfinite_cells"][name] for name in mapping},
@@ -1214,14 +1226,18 @@ class _EmptyFileError(InputFileError):
 
 
 def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
-               rows_after_header: int, warnings=None) -> tuple[pd.DataFrame, np.ndarray, list]:
-    """Every cell as text; return the non-blank rows, their line numbers, the header.
+               rows_after_header: int, warnings=None
+               ) -> tuple[pd.DataFrame, np.ndarray, list, int]:
+    """Every cell as text; return the non-blank rows, their line numbers, the header and
+    the empty trailing names of a header closed by a delimiter the data lines lack.
 
     A line with fewer fields than the header is a record cut short, its last value
     possibly cut mid-number ("12.5" written as "1"): as the file's last line (a
     logger stopped mid-write, a power cut) it is dropped with a note in `warnings`;
     elsewhere it is an error naming the line. A line with more fields is an error, unless
-    the extra fields are empty (a delimiter closing every data line).
+    the extra fields are empty (a delimiter closing every data line). Empty names ending
+    the header (a delimiter closing the header line) are not counted: data lines
+    without that delimiter are complete, and the empty column is left out.
     """
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
@@ -1249,7 +1265,17 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     lines = np.arange(len(raw)) + first_line
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
-    raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings)
+    named = _named_width(header)
+    raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings, named)
+    unnamed_surplus = 0
+    if named < raw.shape[1] and (raw.iloc[:, named:] == "").all(axis=None):
+        # the header closed by a delimiter (an empty last name): the empty column goes;
+        # noted where the data lines lack that delimiter (else both lines end alike)
+        text_lines = text.splitlines()
+        if len(lines) and _field_count(text_lines[lines[0] - 1], delimiter) == named:
+            unnamed_surplus = raw.shape[1] - named
+        raw = raw.iloc[:, :named]
+        header = header[:named]
     if raw.empty:
         skipped_after = (f" after the {rows_after_header} line(s) of rows_after_header"
                          if rows_after_header else "")
@@ -1257,7 +1283,19 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                               f"{skipped_after}", "has a header but no records")
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
-    return raw, lines, [str(h).strip() for h in header]
+    return raw, lines, [str(h).strip() for h in header], unnamed_surplus
+
+
+def _named_width(header: list) -> int:
+    """Fields of the header up to its last non-empty name.
+
+    A header line ending in a delimiter has an empty last name; data lines with that
+    many fields fewer are complete records, not lines cut short.
+    """
+    names = [str(name).strip() for name in header]
+    while len(names) > 1 and names[-1] == "":
+        names.pop()
+    return len(names)
 
 
 def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int) -> pd.DataFrame:
@@ -1322,16 +1360,18 @@ def _field_count(line: str, delimiter: str) -> int:
 
 
 def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndarray,
-                        delimiter: str, warnings) -> tuple[pd.DataFrame, np.ndarray]:
-    """Find lines with fewer fields than the header (read as empty cells by the parser)."""
-    if raw.empty or raw.shape[1] < 2:
+                        delimiter: str, warnings, named: int | None = None
+                        ) -> tuple[pd.DataFrame, np.ndarray]:
+    """Find lines with fewer fields than the header's `named` fields (up to its last
+    non-empty name; read as empty cells by the parser)."""
+    width = raw.shape[1] if named is None else min(named, raw.shape[1])
+    if raw.empty or width < 2:
         return raw, lines
-    # a short line reads as "" in its last column; only those lines are counted
-    candidates = np.flatnonzero((raw.iloc[:, -1] == "").to_numpy())
+    # a short line reads as "" in its last named column; only those lines are counted
+    candidates = np.flatnonzero((raw.iloc[:, width - 1] == "").to_numpy())
     if candidates.size == 0:
         return raw, lines
     text_lines = text.splitlines()
-    width = raw.shape[1]
     short = [int(row) for row in candidates
              if lines[row] - 1 < len(text_lines)
              and _field_count(text_lines[lines[row] - 1], delimiter) < width]
@@ -1388,8 +1428,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     """Read one file: its stamps in local standard time and the numbers of each column."""
     text, used_encoding = _decode(path, encoding)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
-    raw, lines, header = _read_text(path, text, delimiter, rows_before_header,
-                                    rows_after_header, warnings)
+    raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter, rows_before_header,
+                                                     rows_after_header, warnings)
     mapping, flag_columns = _resolve_columns(columns, units, list(raw.columns), header,
                                              time_columns, flag_columns, path)
     source = str(path)
@@ -1427,6 +1467,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         "stamps": stamps, "lines": lines[keep],
         "values": {name: column[keep] for name, column in values.items()},
         "records_read": len(raw), "duplicate_rows": int(duplicate.sum()),
+        "header_trailing_delimiter": bool(unnamed_surplus),
         "missing_cells": missing_cells, "nonfinite_cells": nonfinite,
         "conversions": {"hour_24": parsed.hour_24, "utc_offset": parsed.offset_converted,
                         "daylight_saving": parsed.daylight_saving,
@@ -1478,6 +1519,7 @@ def _combine(parts: list) -> dict:
         "values": values, "merged_rows": merged,
         "records_read": sum(part["records_read"] for part in parts),
         "duplicate_rows": sum(part["duplicate_rows"] for part in parts),
+        "header_trailing_delimiter": sum(part["header_trailing_delimiter"] for part in parts),
         "missing_cells": {name: sum(part["missing_cells"][name] for part in parts)
                           for name in names},
         "nonfinite_cells": {name: sum(part["nonfinite_cells"][name] for part in parts)

@@ -935,6 +935,32 @@ def test_empty_last_cells_are_not_a_cut_line(tmp_path):
     assert len(frame) == 200 and not any("cut short" in w for w in report.warnings)
 
 
+def test_header_closed_by_a_delimiter_the_data_lines_lack(tmp_path):
+    """A header line ending in a delimiter (an empty last name) over data lines without
+    it is read whole and noted in the summary; lines cut short inside it are still
+    refused and a cut last line still dropped (review 0.12.0, layout c100)."""
+    records = _records(periods=200)
+    lines = _write(tmp_path / "t.csv", records).read_text().splitlines()
+    closed = tmp_path / "closed.csv"
+    closed.write_text("\n".join([lines[0] + ","] + lines[1:]) + "\n")
+    frame, report = _read(closed)
+    pd.testing.assert_frame_equal(frame, _read(tmp_path / "t.csv")[0])
+    assert report.header_trailing_delimiter == 1
+    assert "ends with a delimiter the data lines lack" in str(report)
+    assert report.to_dict()["header_trailing_delimiter"] == 1
+    assert "header_trailing_delimiter" not in _read(tmp_path / "t.csv")[1].to_dict()
+    short = tmp_path / "short.csv"
+    short.write_text("\n".join([lines[0] + ","] + lines[1:50] + [lines[50][:20]] + lines[51:])
+                     + "\n")
+    with pytest.raises(InputFileError, match=r"'.*short.csv': line 51 has 2 fields where the "
+                                             r"header has 8; a record cut short"):
+        _read(short)
+    cut = tmp_path / "cut.csv"
+    cut.write_text("\n".join([lines[0] + ","] + lines[1:-1] + [lines[-1][:20]]) + "\n")
+    frame, report = _read(cut)
+    assert len(frame) == 199 and any("last line (201)" in w for w in report.warnings)
+
+
 def test_conflicting_overlap_names_both_files_and_lines(tmp_path):
     """Overlapping files that disagree: one error naming both files and lines."""
     records = _records(periods=100)
