@@ -1382,19 +1382,28 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
     if inner:
         row = inner[0]
         raise InputFileError(
-            f"input file {str(path)!r}: line {int(lines[row])} has "
+            f"input file {str(path)!r}: line {int(lines[row])} "
+            f"({_shown_line(text_lines[lines[row] - 1])!r}) has "
             f"{_field_count(text_lines[lines[row] - 1], delimiter)} fields where the header has "
             f"{width}; a record cut short may hold a value cut mid-number; "
-            f"{len(inner)} such line(s) before the last. Complete or delete them in a copy of "
-            "the file (write missing values as empty cells between delimiters)")
+            f"{len(inner)} such line(s) before the last. Complete or delete them (or a footer) "
+            "in a copy of the file (write missing values as empty cells between delimiters)")
     fields = _field_count(text_lines[lines[last] - 1], delimiter)
-    note = (f"input file {str(path)!r}: its last line ({int(lines[last])}) has {fields} fields "
-            f"where the header has {width}, a record cut short (a logger stopped mid-write): "
-            "dropped")
+    shown = _shown_line(text_lines[lines[last] - 1])
+    # quoted, so that the user sees whether a record or a footer ("END OF FILE") was dropped
+    note = (f"input file {str(path)!r}: its last line ({int(lines[last])}: {shown!r}) has "
+            f"{fields} field(s) where the header has {width}, a record cut short (a logger "
+            "stopped mid-write) or a footer: dropped")
     if warnings is None:
         raise InputFileError(note.replace(": dropped", "; delete that line"))
     warnings.append(note)
     return raw.iloc[:last].reset_index(drop=True), lines[:last]
+
+
+def _shown_line(line: str) -> str:
+    """A line of the file as quoted in a message: stripped, at most 40 characters."""
+    line = line.strip()
+    return line if len(line) <= 40 else line[:40] + "..."
 
 
 def _check_header_line(text: str, delimiter: str, time_columns: tuple,

@@ -904,7 +904,7 @@ def test_last_line_cut_short_is_dropped_and_named(tmp_path):
     cut.write_text("\n".join(lines[:-1] + [lines[-1][:25]]))   # no final newline either
     frame, report = _read(cut)
     pd.testing.assert_frame_equal(frame, _read(path)[0].iloc[:-1], check_freq=False)
-    named = [w for w in report.warnings if "cut.csv" in w and "last line (201)" in w]
+    named = [w for w in report.warnings if "cut.csv" in w and "last line (201: " in w]
     assert len(named) == 1 and "dropped" in named[0]
 
 
@@ -915,7 +915,7 @@ def test_short_line_inside_a_file_is_an_error_naming_it(tmp_path):
     lines = _write(tmp_path / "t.csv", records).read_text().splitlines()
     short = tmp_path / "short.csv"
     short.write_text("\n".join(lines[:50] + [lines[50][:20]] + lines[51:]) + "\n")
-    with pytest.raises(InputFileError, match=r"'.*short.csv': line 51 has 2 fields where the "
+    with pytest.raises(InputFileError, match=r"'.*short.csv': line 51 \('[^']*'\) has 2 fields where the "
                                              r"header has \d+; a record cut short"):
         _read(short)
     long = tmp_path / "long.csv"
@@ -935,6 +935,32 @@ def test_empty_last_cells_are_not_a_cut_line(tmp_path):
     assert len(frame) == 200 and not any("cut short" in w for w in report.warnings)
 
 
+def test_footer_after_the_records_is_dropped_quoted_or_refused(tmp_path):
+    """A footer line ("END OF FILE") after the records: as the last line it is dropped with a
+    warning quoting it, every record kept; two footer lines are refused naming the first,
+    and a footer with every delimiter names its line and stamp (review 0.12.0, layout c54)."""
+    records = _records(periods=200)
+    path = _write(tmp_path / "t.csv", records)
+    text = path.read_text()
+    footer = tmp_path / "footer.csv"
+    footer.write_text(text + "END OF FILE\n")
+    frame, report = _read(footer)
+    pd.testing.assert_frame_equal(frame, _read(path)[0])
+    assert report.records_read == 200
+    assert any("last line (202: 'END OF FILE')" in w and "dropped" in w
+               for w in report.warnings)
+    two = tmp_path / "two.csv"
+    two.write_text(text + "END OF FILE\nrecords: 200\n")
+    with pytest.raises(InputFileError, match=r"line 202 \('END OF FILE'\) has 1 fields .* "
+                                             r"1 such line\(s\) before the last"):
+        _read(two)
+    padded = tmp_path / "padded.csv"
+    padded.write_text(text + "END OF FILE" + "," * 7 + "\n")
+    with pytest.raises(TimestampError, match=r"line 202 of '.*padded.csv' has stamp 'END OF "
+                                             r"FILE'"):
+        _read(padded)
+
+
 def test_header_closed_by_a_delimiter_the_data_lines_lack(tmp_path):
     """A header line ending in a delimiter (an empty last name) over data lines without
     it is read whole and noted in the summary; lines cut short inside it are still
@@ -952,13 +978,13 @@ def test_header_closed_by_a_delimiter_the_data_lines_lack(tmp_path):
     short = tmp_path / "short.csv"
     short.write_text("\n".join([lines[0] + ","] + lines[1:50] + [lines[50][:20]] + lines[51:])
                      + "\n")
-    with pytest.raises(InputFileError, match=r"'.*short.csv': line 51 has 2 fields where the "
+    with pytest.raises(InputFileError, match=r"'.*short.csv': line 51 \('[^']*'\) has 2 fields where the "
                                              r"header has 8; a record cut short"):
         _read(short)
     cut = tmp_path / "cut.csv"
     cut.write_text("\n".join([lines[0] + ","] + lines[1:-1] + [lines[-1][:20]]) + "\n")
     frame, report = _read(cut)
-    assert len(frame) == 199 and any("last line (201)" in w for w in report.warnings)
+    assert len(frame) == 199 and any("last line (201: " in w for w in report.warnings)
 
 
 def test_conflicting_overlap_names_both_files_and_lines(tmp_path):
