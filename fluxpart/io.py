@@ -188,6 +188,10 @@ class ReadReport:
     header_trailing_delimiter : int
         Files whose header line ends with a delimiter (an empty last name) that their
         data lines lack; the empty name was ignored.
+    absent_columns : dict
+        Canonical name -> ``(column, files, records)`` for an optional mapped column
+        that some of several files lack: those files and the records read as missing
+        for that reason.
     """
 
     source: str
@@ -220,6 +224,7 @@ class ReadReport:
     accepted_units: tuple = ()
     unit_refusals: tuple = ()
     header_trailing_delimiter: int = 0
+    absent_columns: dict = field(default_factory=dict)
 
     def __str__(self) -> str:
         files = self.files or (self.source,)
@@ -259,6 +264,9 @@ class ReadReport:
         lines.append("columns           " + ", ".join(
             f"{name} <- {source}" + (f" [{self.units[name]}]" if name in self.units else "")
             for name, source in self.columns.items()))
+        for name, (column, lacking, records) in self.absent_columns.items():
+            lines.append(f"not in every file {name} <- {column}: absent from "
+                         f"{_file_list(list(lacking))}, {records} record(s) read as missing")
         lines.append("missing codes     " + (", ".join(repr(c) for c in self.missing_codes)
                                              or "none"))
         nonfinite = {k: v for k, v in self.nonfinite_cells.items() if v}
@@ -304,6 +312,10 @@ class ReadReport:
             # only where it happened: earlier manifests have no such key
             **({"header_trailing_delimiter": self.header_trailing_delimiter}
                if self.header_trailing_delimiter else {}),
+            # records read as missing per variable because their file lacks its column
+            **({"absent_column_records": {name: records for name, (_, _, records)
+                                          in self.absent_columns.items()}}
+               if self.absent_columns else {}),
         }
 
 
@@ -715,7 +727,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               missing=missing, delimiter=delimiter, decimal=decimal,
                               encoding=encoding, rows_before_header=rows_before_header,
                               rows_after_header=rows_after_header, time_zone=time_zone,
-                              utc_offset=utc_offset, warnings=warnings)
+                              utc_offset=utc_offset, warnings=warnings,
+                              may_lack=len(paths) > 1)
         except _EmptyFileError as error:
             # one of several files without records (a logger file opened at a power cut):
             # it holds nothing to read, so the others are read and it is named
@@ -736,6 +749,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     if not parts:
         raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
                              f"{empty[0]!r}); check [input] path")
+    parts, absent = _fill_lacking(parts, mapping, warnings)
     combined = _combine(parts)
 
     stamps = combined["stamps"]
@@ -888,6 +902,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         duplicate_rows=combined["duplicate_rows"],
         merged_rows=combined["merged_rows"],
         header_trailing_delimiter=combined["header_trailing_delimiter"],
+        absent_columns=absent,
         stamp_conversions=combined["conversions"] | (
             {"time_zone": time_zone} if time_zone else {}),
         nonfinite_cells={name: combined["nonfinite_cells"][name] for name in mapping},
@@ -1433,21 +1448,27 @@ def _flag_key(column: str) -> str:
 
 def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_format, missing,
                delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
-               utc_offset, warnings) -> dict:
-    """Read one file: its stamps in local standard time and the numbers of each column."""
+               utc_offset, warnings, may_lack=False) -> dict:
+    """Read one file: its stamps in local standard time and the numbers of each column.
+
+    `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
+    instead of refused (one of several files).
+    """
     text, used_encoding = _decode(path, encoding)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter, rows_before_header,
                                                      rows_after_header, warnings)
-    mapping, flag_columns = _resolve_columns(columns, units, list(raw.columns), header,
-                                             time_columns, flag_columns, path)
+    mapping, flag_columns, lacking = _resolve_columns(
+        columns, units, list(raw.columns), header, time_columns, flag_columns, path, may_lack)
     source = str(path)
     stamp_text = join_time_columns(raw, time_columns)
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)
     values, missing_cells, nonfinite = {}, {}, {}
-    read = dict(mapping) | {_flag_key(column): column for column in flag_columns}
+    read = {name: column for name, column in mapping.items() if (name, column) not in lacking}
+    read |= {_flag_key(column): column for column in flag_columns
+             if ("nee_flag", column) not in lacking}
     for name, column in read.items():
         numbers, n_missing, absurd = _numbers(raw[column], column, name, missing, decimal,
                                               source, lines)
@@ -1472,7 +1493,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                 time_zone=time_zone)
     return {
         "source": source, "encoding": used_encoding, "mapping": mapping,
-        "flag_columns": flag_columns,
+        "flag_columns": flag_columns, "lacking": lacking, "file_columns": list(raw.columns),
         "stamps": stamps, "lines": lines[keep],
         "values": {name: column[keep] for name, column in values.items()},
         "records_read": len(raw), "duplicate_rows": int(duplicate.sum()),
@@ -1484,6 +1505,76 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                         **({"rounded_to_minute": parsed.rounded_to_minute}
                            if parsed.rounded_to_minute else {})},
     }
+
+
+#: Mapped variables a file among several may lack, read as missing for its records: a
+#: sensor added or removed during the record (a soil probe installed in the second year).
+#: Required variables, the site flag (its records would enter unjudged), storage (every
+#: NEE of the file would be missing) and PPFD are refused instead; ``rh`` only where
+#: ``vpd`` is read, not derived from it.
+_MAY_LACK = ("tsoil", "rh")
+
+
+def _fill_lacking(parts: list, mapping: dict, warnings: list) -> tuple[list, dict]:
+    """Give the records of files lacking an optional mapped column missing values.
+
+    Returns the parts with NaN columns in place of the lacking ones, and for each such
+    variable ``(column, files lacking it, records read as missing)``. Raises where a
+    column is in no file, is not optional (:data:`_MAY_LACK`), or where a file lacking it
+    has an unmapped column of a similar name (a renamed column, not a missing sensor).
+    """
+    lacking = {}
+    for part in parts:
+        for key in part["lacking"]:
+            lacking.setdefault(key, []).append(part)
+    absent = {}
+    for (name, column), without in lacking.items():
+        having = [part["source"] for part in parts if (name, column) not in part["lacking"]]
+        first = without[0]
+        taken = (set(mapping.values()) | set(first["flag_columns"])) - {column}
+        near = _near(column, [c for c in first["file_columns"] if c not in taken])
+        lacks = _file_list([part["source"] for part in without])
+        setting = f"[input.columns] {name} = {setting_text(column)}"
+        if not having:
+            raise MissingColumnError(f"{setting}: no such column in any of the {len(parts)} "
+                                     f"input files{near}; "
+                                     f"{_columns_listing(first['file_columns'])} in "
+                                     f"{first['source']!r}")
+        optional = name in _MAY_LACK and (name != "rh" or "vpd" in mapping)
+        found = f"{setting}: the column is in {_file_list(having)} but not in {lacks}"
+        if near:
+            raise MissingColumnError(
+                f"{found}, which has an unmapped column of a similar name{near}: a column "
+                "renamed between files? Give the column the same name in every file (in a "
+                "copy), or read the files in separate runs")
+        if not optional:
+            why = {"nee_flag": "records without the site's flag would enter unjudged",
+                   "storage": "every NEE of a file without storage would be missing"}.get(
+                       name, f"{name} is needed in every record")
+            raise MissingColumnError(
+                f"{found}; {why}: add the column to {lacks} (empty cells where there is no "
+                f"value), or remove {name} from [input.columns] to read no file's {name}")
+        records = 0
+        for part in without:
+            count = len(part["stamps"])
+            part["values"][name] = np.full(count, np.nan)
+            part["missing_cells"][name] = 0
+            part["nonfinite_cells"][name] = 0
+            records += count
+        absent[name] = (column, tuple(part["source"] for part in without), records)
+        warnings.append(f"{name}: column {column!r} is in {_file_list(having)} but not in "
+                        f"{lacks}; its {records} record(s) there are read as missing {name} "
+                        "(as if the column were there with empty cells); remove "
+                        f"{name} from [input.columns] to use no file's {name}")
+    return parts, absent
+
+
+def _file_list(sources: list) -> str:
+    """``'a.csv'``, ``'a.csv' and 'b.csv'`` or ``'a.csv', 'b.csv' and 3 more files``."""
+    quoted = [repr(str(source)) for source in sources]
+    if len(quoted) > 3:
+        return f"{', '.join(quoted[:2])} and {len(quoted) - 2} more files"
+    return quoted[0] if len(quoted) == 1 else f"{', '.join(quoted[:-1])} and {quoted[-1]}"
 
 
 def _combine(parts: list) -> dict:
@@ -1538,26 +1629,40 @@ def _combine(parts: list) -> dict:
 
 
 def _resolve_columns(columns: dict, units: dict, file_columns: list, header: list,
-                     time_columns: tuple, flag_columns: tuple, path: Path) -> tuple[dict, tuple]:
-    """Canonical name -> file column in canonical order, and the flag columns; check them."""
+                     time_columns: tuple, flag_columns: tuple, path: Path,
+                     may_lack: bool = False) -> tuple[dict, tuple, tuple]:
+    """Canonical name -> file column in canonical order, the flag columns, and the mapped
+    columns the file lacks; check them.
+
+    `may_lack`: a column of ``[input.columns]`` absent from the file is returned as
+    ``(name, column)`` among the lacking instead of raising (one of several files; the
+    caller decides with all files read). Mapping and flag columns include them.
+    """
+    taken = set(columns.values()) | set(time_columns) | set(flag_columns)
     for time_column in time_columns:
         if time_column not in file_columns:
             raise MissingColumnError(f"[input] time_column = {setting_text(time_column)}: no such column in "
-                                     f"{str(path)!r}{_near(time_column, file_columns)}; "
+                                     f"{str(path)!r}{_near(time_column, file_columns, taken)}; "
                                      f"{_columns_listing(file_columns)}")
+    lacking = []
     for column in flag_columns:
         if column not in file_columns:
+            if may_lack:
+                lacking.append(("nee_flag", column))
+                continue
             raise MissingColumnError(f"[input.columns] nee_flag = {setting_text(column)}: no such column in "
-                                     f"{str(path)!r}{_near(column, file_columns)}; "
+                                     f"{str(path)!r}{_near(column, file_columns, taken)}; "
                                      f"{_columns_listing(file_columns)}")
     mapping = {}
     for name, column in columns.items():
-        if column not in file_columns:
-            raise MissingColumnError(f"[input.columns] {name} = {setting_text(column)}: no such column in "
-                                     f"{str(path)!r}{_near(column, file_columns)}; "
-                                     f"{_columns_listing(file_columns)}")
         if column in time_columns:
             raise ConfigError(f"[input.columns] {name} = {setting_text(column)} is a time column")
+        if column not in file_columns:
+            if not may_lack:
+                raise MissingColumnError(f"[input.columns] {name} = {setting_text(column)}: no such column "
+                                         f"in {str(path)!r}{_near(column, file_columns, taken)}; "
+                                         f"{_columns_listing(file_columns)}")
+            lacking.append((name, column))
         mapping[name] = column
     used = set(mapping.values()) | set(time_columns) | set(flag_columns)
     for name in VARIABLES:
@@ -1590,7 +1695,8 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
         if column in duplicated:
             raise InputFileError(f"column {column!r} (for {name}) appears more than once in the "
                                  f"header of {str(path)!r}; rename the copies")
-    return {name: mapping[name] for name in READER_VARIABLES if name in mapping}, flag_columns
+    return ({name: mapping[name] for name in READER_VARIABLES if name in mapping}, flag_columns,
+            tuple(lacking))
 
 
 def _empty_required_message(name: str, mapping: dict, derived: list) -> str:
@@ -1618,10 +1724,15 @@ def _describe_mapping(mapping: dict, flag_columns: tuple) -> str:
     return ", ".join(f"{name} <- {column}" for name, column in pairs)
 
 
-def _near(name: str, options: list) -> str:
-    close = difflib.get_close_matches(name, [str(o) for o in options], n=1, cutoff=0.6)
+def _near(name: str, options: list, taken=()) -> str:
+    """" (did you mean 'x'?)" for the column of `options` nearest `name`, or "".
+
+    Columns in `taken` (read as another variable, or as the time) are never suggested.
+    """
+    free = [str(o) for o in options if o not in taken]
+    close = difflib.get_close_matches(name, free, n=1, cutoff=0.6)
     if not close:
-        stripped = [o for o in options if str(o).strip() == name.strip()]
+        stripped = [o for o in free if o.strip() == name.strip()]
         close = stripped[:1]
     return f" (did you mean {close[0]!r}?)" if close else ""
 

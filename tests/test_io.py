@@ -849,6 +849,60 @@ def test_several_files_equal_one_file(tmp_path):
     assert len(report.files) == 2 and "identical in overlapping files" in str(report)
 
 
+def test_optional_column_lacking_in_one_of_several_files_reads_as_missing(tmp_path):
+    """A soil temperature in the first file only (a probe added or removed mid-record) is
+    read as missing for the second file's records, named in a warning, the summary and the
+    manifest's reader record (review 0.12.0, layout c88)."""
+    records = _records(periods=200)
+    first = _write(tmp_path / "a.csv", records.iloc[:120])
+    second = _write(tmp_path / "b.csv", records.iloc[120:].drop(columns="t_soil"))
+    frame, report = _read([first, second], columns=MAPPING | {"tsoil": "t_soil"})
+    whole = _plain(tmp_path, records, columns=MAPPING | {"tsoil": "t_soil"})
+    pd.testing.assert_frame_equal(frame.iloc[:120], whole.iloc[:120], check_freq=False)
+    assert frame["tsoil"].iloc[120:].isna().all()
+    pd.testing.assert_frame_equal(frame.drop(columns="tsoil"), whole.drop(columns="tsoil"))
+    warning = [w for w in report.warnings if w.startswith("tsoil:")]
+    assert len(warning) == 1
+    assert re.search(r"'t_soil' is in '.*a.csv' but not in '.*b.csv'; its 80 record\(s\) "
+                     r"there are read as missing tsoil", warning[0])
+    assert report.to_dict()["absent_column_records"] == {"tsoil": 80}
+    assert re.search(r"not in every file tsoil <- t_soil: absent from '.*b.csv', 80 record",
+                     str(report))
+
+
+def test_required_or_renamed_column_lacking_in_one_file_is_refused_accurately(tmp_path):
+    """A required column, a site flag or rh that VPD is derived from, lacking in one of
+    several files, is refused naming the files that have it and lack it and the fix; a
+    lacking optional column with a similar unmapped one (a rename) is refused with that
+    hint; a column already read as another variable is never suggested (review 0.12.0)."""
+    records = _records(periods=200).rename(columns={"t_air": "air_temp_c"})
+    records["qc"] = 0
+    mapping = MAPPING | {"tair": "air_temp_c"}
+    first = _write(tmp_path / "a.csv", records.iloc[:120])
+    for column, extra, fix in (("co2_flux", {}, r"nee is needed in every record: add the "
+                                                r"column to '.*b.csv' \(empty cells"),
+                               ("qc", {"nee_flag": "qc"}, r"records without the site's flag "
+                                                          r"would enter unjudged"),
+                               ("rel_hum", {"rh": "rel_hum", "vpd": None}, r"rh is needed")):
+        columns = {k: v for k, v in (mapping | extra).items() if v is not None}
+        second = _write(tmp_path / "b.csv", records.iloc[120:].drop(columns=column))
+        with pytest.raises(MissingColumnError, match=rf"\[input.columns\] \w+ = \"{column}\": "
+                                                     rf"the column is in '.*a.csv' but not in "
+                                                     rf"'.*b.csv'; {fix}"):
+            _read([first, second], columns=columns)
+    second = _write(tmp_path / "b.csv", records.iloc[120:].rename(columns={"t_soil": "T_soil"}))
+    with pytest.raises(MissingColumnError, match=r"has an unmapped column of a similar name "
+                                                 r"\(did you mean 'T_soil'\?\): a column renamed"):
+        _read([first, second], columns=mapping | {"tsoil": "t_soil"})
+    with pytest.raises(MissingColumnError, match=r"tsoil = \"soil_temp_5cm\": no such column "
+                                                 r"in '.*a.csv'; the file has") as error:
+        _read(first, columns=mapping | {"tsoil": "soil_temp_5cm"})
+    assert "did you mean" not in str(error.value)
+    with pytest.raises(MissingColumnError, match=r"tsoil = \"soil_temp_5cm\": no such column "
+                                                 r"in any of the 2 input files"):
+        _read([first, second], columns=mapping | {"tsoil": "soil_temp_5cm"})
+
+
 def test_glob_and_list_in_site_config(tmp_path):
     """[input] path as a glob or a list gives the same frame; the input hash covers all files."""
     records = _records(periods=200)
