@@ -385,12 +385,14 @@ def _clock_and_preflight(frame, site, config, interval, geometry, is_night, scre
             shift_applied_minutes=float(reader.get("shift_minutes") or 0.0))
     findings = preflight.preflight(
         frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),
-        screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval)
+        screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval,
+        reader.get("columns"))
     return verdict, findings
 
 
 def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
-                 time_marks: str | None = None, shift_applied_minutes: float = 0.0):
+                 time_marks: str | None = None, shift_applied_minutes: float = 0.0,
+                 columns: dict | None = None):
     """The clock verdict and every preflight finding of a record, as ``check`` lists them.
 
     Parameters
@@ -405,6 +407,8 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
         The file's declared stamp convention, for the clock message.
     shift_applied_minutes : float, optional
         Minutes the reader subtracted from the file's stamps.
+    columns : dict, optional
+        Canonical name -> file column (``ReadReport.columns``), named in messages.
 
     Returns
     -------
@@ -419,7 +423,7 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
     geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     return _clock_and_preflight(frame, site, config, interval, geometry, is_night, screens,
                                 {"time_marks": time_marks,
-                                 "shift_minutes": shift_applied_minutes})
+                                 "shift_minutes": shift_applied_minutes, "columns": columns})
 
 
 def _refuse(verdict, findings, config) -> None:
