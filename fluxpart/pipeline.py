@@ -291,6 +291,14 @@ def _prepare(frame, site: Site) -> tuple:
     return frame, notes
 
 
+def _budget_record(frame: pd.DataFrame, config: Config, interval: int) -> tuple:
+    """The frame on its budget years (:func:`fluxpart.timestamps.budget_year_edges`): a
+    fragment of less than a day left out, edge records up to a day added as gaps; and
+    the notes saying so."""
+    index, notes = timestamps.budget_year_edges(frame.index, interval, config.year_start)
+    return (frame.reindex(index) if notes else frame), notes
+
+
 def _labelled(timeseries: pd.DataFrame) -> pd.DataFrame:
     """Rejection reason, fill method and fill qualities as labelled (dictionary) columns."""
     labels = {"rejection_reason": screening.REASON_CODES, "nee_fill_method": _METHOD_LABELS}
@@ -420,10 +428,13 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
     config = Config() if config is None else config
     frame, _ = _prepare(frame, site)
     interval = _validate(frame)
+    frame, edges = _budget_record(frame, config, interval)
     geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
-    return _clock_and_preflight(frame, site, config, interval, geometry, is_night, screens,
-                                {"time_marks": time_marks,
-                                 "shift_minutes": shift_applied_minutes, "columns": columns})
+    verdict, findings = _clock_and_preflight(
+        frame, site, config, interval, geometry, is_night, screens,
+        {"time_marks": time_marks, "shift_minutes": shift_applied_minutes, "columns": columns})
+    return verdict, findings + [preflight.Finding("annual budget", note, False)
+                                for note in edges]
 
 
 def _refuse(verdict, findings, config) -> None:
@@ -467,6 +478,7 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     config = Config() if config is None else config
     frame, _ = _prepare(frame, site)
     interval = _validate(frame)
+    frame, _ = _budget_record(frame, config, interval)
     _, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     table, _, _, _ = _ustar_thresholds(frame, screens.screened, is_night, site, config)
     return screens.counts.drop(labels=["low_ustar"], errors="ignore"), table
@@ -627,11 +639,12 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         raise ConfigError(f"site must be a fluxpart.Site, got {type(site).__name__}")
     frame, notes = _prepare(frame, site)
     interval = _validate(frame)
+    frame, edges = _budget_record(frame, config, interval)
     frame = frame.copy()
     frame.index = frame.index.rename("time")
     temperature = _temperature(config, frame)
     warnings = [f"input: {text}" for text in [*(provenance or {}).get("reader", {}).get(
-        "warnings", []), *notes]]
+        "warnings", []), *notes]] + [f"budget year: {text}" for text in edges]
 
     def step(label: str) -> None:
         _LOG.info("%s: %s", site.name, label)     # the standard logging route (silent by default)

@@ -48,11 +48,17 @@ def test_one_day_of_data_stops_before_e0(demo_frame):
 
 
 def test_a_year_one_record_short_does_not_read_as_365_days(demo_frame):
-    """A year without its last record (a truncated last line dropped) is partial; the finding
-    says by how much instead of 'covers 365.0 days, less than a year' (fresh-eyes campaign)."""
-    _, findings = check_record(demo_frame.iloc[:-1], demo.site())
+    """A record one record short of a year is partial where its budget years do not end
+    with it (July–June); the finding says by how much instead of 'covers 365.0 days, less
+    than a year' (fresh-eyes campaign). Where its calendar year does, the absent record is
+    added as a gap and the year is whole (review 0.12.0)."""
+    _, findings = check_record(demo_frame.iloc[:-1], demo.site(), Config(year_start="07-01"))
     text = [str(f) for f in findings if f.stage == "annual budget"]
     assert len(text) == 1 and "364.98 days (1 record(s) short of 365 days)" in text[0]
+    _, findings = check_record(demo_frame.iloc[:-1], demo.site())
+    text = [str(f) for f in findings if f.stage == "annual budget"]
+    assert len(text) == 1 and "1 record(s) at its end" in text[0]
+    assert "so the year is complete" in text[0]
 
 
 def test_e0_fallback_turns_the_e0_finding_into_a_fallback(demo_frame):
