@@ -2,6 +2,8 @@
 
 Stages (each a pure function of its own module):
 
+0. the record fitted to its budget years: a fragment of less than a day left out, up to a
+   day absent at a year's edges added as gaps (:func:`fluxpart.timestamps.budget_year_edges`);
 1. solar geometry and the night mask (:mod:`fluxpart.solar`);
 2. screening: plausible ranges, the site's flag, despiking (:mod:`fluxpart.screening`);
    then, before any fit, the clock and site-geometry check (:mod:`fluxpart.clock`) and
