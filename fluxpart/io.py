@@ -749,7 +749,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     if not parts:
         raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
                              f"{empty[0]!r}); check [input] path")
-    parts, absent = _fill_lacking(parts, mapping, warnings)
+    parts, absent = _fill_lacking(parts, mapping, time_columns, warnings)
     combined = _combine(parts)
 
     stamps = combined["stamps"]
@@ -1515,7 +1515,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
 _MAY_LACK = ("tsoil", "rh")
 
 
-def _fill_lacking(parts: list, mapping: dict, warnings: list) -> tuple[list, dict]:
+def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
+                  warnings: list) -> tuple[list, dict]:
     """Give the records of files lacking an optional mapped column missing values.
 
     Returns the parts with NaN columns in place of the lacking ones, and for each such
@@ -1531,7 +1532,8 @@ def _fill_lacking(parts: list, mapping: dict, warnings: list) -> tuple[list, dic
     for (name, column), without in lacking.items():
         having = [part["source"] for part in parts if (name, column) not in part["lacking"]]
         first = without[0]
-        taken = (set(mapping.values()) | set(first["flag_columns"])) - {column}
+        taken = (set(mapping.values()) | set(first["flag_columns"]) | set(time_columns)) - {
+            column}
         near = _near(column, [c for c in first["file_columns"] if c not in taken])
         lacks = _file_list([part["source"] for part in without])
         setting = f"[input.columns] {name} = {setting_text(column)}"
@@ -1554,19 +1556,21 @@ def _fill_lacking(parts: list, mapping: dict, warnings: list) -> tuple[list, dic
             raise MissingColumnError(
                 f"{found}; {why}: add the column to {lacks} (empty cells where there is no "
                 f"value), or remove {name} from [input.columns] to read no file's {name}")
-        records = 0
-        for part in without:
-            count = len(part["stamps"])
-            part["values"][name] = np.full(count, np.nan)
-            part["missing_cells"][name] = 0
-            part["nonfinite_cells"][name] = 0
-            records += count
+        records = sum(len(part["stamps"]) for part in without)
         absent[name] = (column, tuple(part["source"] for part in without), records)
         warnings.append(f"{name}: column {column!r} is in {_file_list(having)} but not in "
                         f"{lacks}; its {records} record(s) there are read as missing {name} "
                         "(as if the column were there with empty cells); remove "
                         f"{name} from [input.columns] to use no file's {name}")
-    return parts, absent
+    filled = []
+    for part in parts:
+        names = [name for name, _ in part["lacking"] if name in absent]
+        filled.append(part | {
+            "values": part["values"] | {name: np.full(len(part["stamps"]), np.nan)
+                                        for name in names},
+            "missing_cells": part["missing_cells"] | dict.fromkeys(names, 0),
+            "nonfinite_cells": part["nonfinite_cells"] | dict.fromkeys(names, 0)})
+    return filled, absent
 
 
 def _file_list(sources: list) -> str:

@@ -615,7 +615,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         ``nee_flag``) on a regular 30- or 60-minute DatetimeIndex of interval starts
         in local standard time; one or more years. Not modified. A tz-aware index
         is converted with ``site.utc_offset``; other columns are ignored (each with
-        a warning).
+        a warning). A budget year at either end holding less than a day of records is
+        left out, and up to a day absent at a year's edges is added as gaps
+        (:func:`fluxpart.timestamps.budget_year_edges`; each with a warning).
     site : Site
         Location of the tower.
     config : Config, optional
