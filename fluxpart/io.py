@@ -1534,8 +1534,12 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
         first = without[0]
         taken = (set(mapping.values()) | set(first["flag_columns"]) | set(time_columns)) - {
             column}
-        near = _near(column, [c for c in first["file_columns"] if c not in taken])
+        free = [c for c in first["file_columns"] if c not in taken]
+        near = _near(column, free)
         lacks = _file_list([part["source"] for part in without])
+        # a renamed column is among the lacking file's unmapped ones: named, for the user
+        unmapped = (f", whose unmapped columns are {_names(free)}" if free
+                    else ", whose every column is read")
         setting = f"[input.columns] {name} = {setting_text(column)}"
         if not having:
             raise MissingColumnError(f"{setting}: no such column in any of the {len(parts)} "
@@ -1544,6 +1548,8 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                                      f"{first['source']!r}")
         optional = name in _MAY_LACK and (name != "rh" or "vpd" in mapping)
         found = f"{setting}: the column is in {_file_list(having)} but not in {lacks}"
+        renamed = ("if one of them is the same quantity renamed, give it the same name in "
+                   "every file (in a copy); else " if free else "")
         if near:
             raise MissingColumnError(
                 f"{found}, which has an unmapped column of a similar name{near}: a column "
@@ -1553,15 +1559,19 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
             why = {"nee_flag": "records without the site's flag would enter unjudged",
                    "storage": "every NEE of a file without storage would be missing"}.get(
                        name, f"{name} is needed in every record")
+            remove = ("" if name in REQUIRED else
+                      f", or remove {name} from [input.columns] to read no file's {name}")
             raise MissingColumnError(
-                f"{found}; {why}: add the column to {lacks} (empty cells where there is no "
-                f"value), or remove {name} from [input.columns] to read no file's {name}")
+                f"{found}{unmapped}; {why}: {renamed}add the column to {lacks} (empty cells "
+                f"where there is no value){remove}")
         records = sum(len(part["stamps"]) for part in without)
         absent[name] = (column, tuple(part["source"] for part in without), records)
+        rename = ("; if one of those columns is it renamed, give it the same name in every "
+                  "file (in a copy)" if free else "")
         warnings.append(f"{name}: column {column!r} is in {_file_list(having)} but not in "
-                        f"{lacks}; its {records} record(s) there are read as missing {name} "
-                        "(as if the column were there with empty cells); remove "
-                        f"{name} from [input.columns] to use no file's {name}")
+                        f"{lacks}{unmapped}; its {records} record(s) there are read as missing "
+                        f"{name} (as if the column were there with empty cells){rename}; to "
+                        f"use no file's {name}, remove it from [input.columns]")
     filled = []
     for part in parts:
         names = [name for name, _ in part["lacking"] if name in absent]
@@ -1571,6 +1581,12 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
             "missing_cells": part["missing_cells"] | dict.fromkeys(names, 0),
             "nonfinite_cells": part["nonfinite_cells"] | dict.fromkeys(names, 0)})
     return filled, absent
+
+
+def _names(columns: list, shown: int = 8) -> str:
+    """``'a', 'b'`` or ``'a', 'b', ... and 5 more``: column names for a message."""
+    quoted = ", ".join(repr(str(c)) for c in columns[:shown])
+    return quoted + (f" and {len(columns) - shown} more" if len(columns) > shown else "")
 
 
 def _file_list(sources: list) -> str:

@@ -863,8 +863,9 @@ def test_optional_column_lacking_in_one_of_several_files_reads_as_missing(tmp_pa
     pd.testing.assert_frame_equal(frame.drop(columns="tsoil"), whole.drop(columns="tsoil"))
     warning = [w for w in report.warnings if w.startswith("tsoil:")]
     assert len(warning) == 1
-    assert re.search(r"'t_soil' is in '.*a.csv' but not in '.*b.csv'; its 80 record\(s\) "
-                     r"there are read as missing tsoil", warning[0])
+    assert re.search(r"'t_soil' is in '.*a.csv' but not in '.*b.csv', whose unmapped columns "
+                     r"are 'rel_hum'; its 80 record\(s\) there are read as missing tsoil .*; "
+                     r"if one of those columns is it renamed, give it the same name", warning[0])
     assert report.to_dict()["absent_column_records"] == {"tsoil": 80}
     assert re.search(r"not in every file tsoil <- t_soil: absent from '.*b.csv', 80 record",
                      str(report))
@@ -879,8 +880,11 @@ def test_required_or_renamed_column_lacking_in_one_file_is_refused_accurately(tm
     records["qc"] = 0
     mapping = MAPPING | {"tair": "air_temp_c"}
     first = _write(tmp_path / "a.csv", records.iloc[:120])
-    for column, extra, fix in (("co2_flux", {}, r"nee is needed in every record: add the "
-                                                r"column to '.*b.csv' \(empty cells"),
+    for column, extra, fix in (("co2_flux", {}, r"nee is needed in every record: if one of "
+                                                r"them is the same quantity renamed, give it "
+                                                r"the same name in every file \(in a copy\); "
+                                                r"else add the column to '.*b.csv' \(empty "
+                                                r"cells where there is no value\)$"),
                                ("qc", {"nee_flag": "qc"}, r"records without the site's flag "
                                                           r"would enter unjudged"),
                                ("rel_hum", {"rh": "rel_hum", "vpd": None}, r"rh is needed")):
@@ -888,7 +892,8 @@ def test_required_or_renamed_column_lacking_in_one_file_is_refused_accurately(tm
         second = _write(tmp_path / "b.csv", records.iloc[120:].drop(columns=column))
         with pytest.raises(MissingColumnError, match=rf"\[input.columns\] \w+ = \"{column}\": "
                                                      rf"the column is in '.*a.csv' but not in "
-                                                     rf"'.*b.csv'; {fix}"):
+                                                     rf"'.*b.csv', whose unmapped columns are "
+                                                     rf"'.*'; {fix}"):
             _read([first, second], columns=columns)
     second = _write(tmp_path / "b.csv", records.iloc[120:].rename(columns={"t_soil": "T_soil"}))
     with pytest.raises(MissingColumnError, match=r"has an unmapped column of a similar name "
