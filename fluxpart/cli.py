@@ -280,7 +280,8 @@ def _command_check(args) -> int:
     table = coverage_table(frame, report.interval_minutes)
     verdict, findings = check_record(frame, site_config.site, config,
                                      time_marks=report.time_marks,
-                                     shift_applied_minutes=report.shift_minutes)
+                                     shift_applied_minutes=report.shift_minutes,
+                                     columns=report.columns)
     refuse = config.clock_check == "refuse"
     problems = [f"{text}{' (run stops)' if refuse else ''}"
                 for text in (verdict.problems if verdict is not None else ())]

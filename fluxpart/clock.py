@@ -53,6 +53,7 @@ import numpy as np
 import pandas as pd
 
 from ._quantile import nanquantile
+from .site import FRACTIONAL_UTC_OFFSETS
 from .solar import potential_radiation
 
 __all__ = [
@@ -581,11 +582,9 @@ def _one_block(inside: set, outside: set) -> bool:
     return False
 
 
-#: UTC offsets in use that are not whole hours [h] (time zones of Newfoundland, Iran,
-#: Afghanistan, India, Nepal, Myanmar, Central Australia, Chatham Islands and others;
-#: common knowledge (m)): only these are suggested for a shift that is not whole hours.
-_FRACTIONAL_UTC_OFFSETS = frozenset({-9.5, -3.5, 3.5, 4.5, 5.5, 5.75, 6.5, 8.75, 9.5, 10.5,
-                                     12.75})
+#: UTC offsets in use that are not whole hours [h] (:data:`fluxpart.site.FRACTIONAL_UTC_OFFSETS`):
+#: only these are suggested for a shift that is not whole hours.
+_FRACTIONAL_UTC_OFFSETS = FRACTIONAL_UTC_OFFSETS
 
 
 def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: str | None,

@@ -185,6 +185,13 @@ class ReadReport:
     unit_refusals : tuple of str
         Unit or plausibility problems that stop ``run``, when read with
         ``unit_problems="report"`` (as ``fluxpart check`` does); also in `warnings`.
+    header_trailing_delimiter : int
+        Files whose header line ends with a delimiter (an empty last name) that their
+        data lines lack; the empty name was ignored.
+    absent_columns : dict
+        Canonical name -> ``(column, files, records)`` for an optional mapped column
+        that some of several files lack: those files and the records read as missing
+        for that reason.
     """
 
     source: str
@@ -216,6 +223,8 @@ class ReadReport:
     storage_missing: int = 0
     accepted_units: tuple = ()
     unit_refusals: tuple = ()
+    header_trailing_delimiter: int = 0
+    absent_columns: dict = field(default_factory=dict)
 
     def __str__(self) -> str:
         files = self.files or (self.source,)
@@ -236,6 +245,10 @@ class ReadReport:
             "(interval starts)",
             f"records read      {self.records_read}",
         ]
+        if self.header_trailing_delimiter:
+            lines.append(f"header            ends with a delimiter the data lines lack (an empty "
+                         f"last name) in {self.header_trailing_delimiter} of {len(files)} "
+                         "file(s): the empty name was ignored")
         if self.duplicate_rows or self.merged_rows:
             lines.append(f"rows dropped      {self.duplicate_rows} exact duplicate(s) within a "
                          f"file, {self.merged_rows} identical in overlapping files")
@@ -251,6 +264,9 @@ class ReadReport:
         lines.append("columns           " + ", ".join(
             f"{name} <- {source}" + (f" [{self.units[name]}]" if name in self.units else "")
             for name, source in self.columns.items()))
+        for name, (column, lacking, records) in self.absent_columns.items():
+            lines.append(f"not in every file {name} <- {column}: absent from "
+                         f"{_file_list(list(lacking))}, {records} record(s) read as missing")
         lines.append("missing codes     " + (", ".join(repr(c) for c in self.missing_codes)
                                              or "none"))
         nonfinite = {k: v for k, v in self.nonfinite_cells.items() if v}
@@ -293,6 +309,13 @@ class ReadReport:
             "accepted_units": list(self.accepted_units),
             "unit_refusals": list(self.unit_refusals),
             "derived": list(self.derived), "warnings": list(self.warnings),
+            # only where it happened: earlier manifests have no such key
+            **({"header_trailing_delimiter": self.header_trailing_delimiter}
+               if self.header_trailing_delimiter else {}),
+            # records read as missing per variable because their file lacks its column
+            **({"absent_column_records": {name: records for name, (_, _, records)
+                                          in self.absent_columns.items()}}
+               if self.absent_columns else {}),
         }
 
 
@@ -704,7 +727,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               missing=missing, delimiter=delimiter, decimal=decimal,
                               encoding=encoding, rows_before_header=rows_before_header,
                               rows_after_header=rows_after_header, time_zone=time_zone,
-                              utc_offset=utc_offset, warnings=warnings)
+                              utc_offset=utc_offset, warnings=warnings,
+                              may_lack=len(paths) > 1)
         except _EmptyFileError as error:
             # one of several files without records (a logger file opened at a power cut):
             # it holds nothing to read, so the others are read and it is named
@@ -725,6 +749,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     if not parts:
         raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
                              f"{empty[0]!r}); check [input] path")
+    parts, absent = _fill_lacking(parts, mapping, time_columns, warnings)
     combined = _combine(parts)
 
     stamps = combined["stamps"]
@@ -876,6 +901,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         encodings=tuple(part["encoding"] for part in parts),
         duplicate_rows=combined["duplicate_rows"],
         merged_rows=combined["merged_rows"],
+        header_trailing_delimiter=combined["header_trailing_delimiter"],
+        absent_columns=absent,
         stamp_conversions=combined["conversions"] | (
             {"time_zone": time_zone} if time_zone else {}),
         nonfinite_cells={name: combined["nonfinite_cells"][name] for name in mapping},
@@ -1214,14 +1241,18 @@ class _EmptyFileError(InputFileError):
 
 
 def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
-               rows_after_header: int, warnings=None) -> tuple[pd.DataFrame, np.ndarray, list]:
-    """Every cell as text; return the non-blank rows, their line numbers, the header.
+               rows_after_header: int, warnings=None
+               ) -> tuple[pd.DataFrame, np.ndarray, list, int]:
+    """Every cell as text; return the non-blank rows, their line numbers, the header and
+    the empty trailing names of a header closed by a delimiter the data lines lack.
 
     A line with fewer fields than the header is a record cut short, its last value
     possibly cut mid-number ("12.5" written as "1"): as the file's last line (a
     logger stopped mid-write, a power cut) it is dropped with a note in `warnings`;
     elsewhere it is an error naming the line. A line with more fields is an error, unless
-    the extra fields are empty (a delimiter closing every data line).
+    the extra fields are empty (a delimiter closing every data line). Empty names ending
+    the header (a delimiter closing the header line) are not counted: data lines
+    without that delimiter are complete, and the empty column is left out.
     """
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
@@ -1249,7 +1280,17 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     lines = np.arange(len(raw)) + first_line
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
-    raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings)
+    named = _named_width(header)
+    raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings, named)
+    unnamed_surplus = 0
+    if named < raw.shape[1] and (raw.iloc[:, named:] == "").all(axis=None):
+        # the header closed by a delimiter (an empty last name): the empty column goes;
+        # noted where the data lines lack that delimiter (else both lines end alike)
+        text_lines = text.splitlines()
+        if len(lines) and _field_count(text_lines[lines[0] - 1], delimiter) == named:
+            unnamed_surplus = raw.shape[1] - named
+        raw = raw.iloc[:, :named]
+        header = header[:named]
     if raw.empty:
         skipped_after = (f" after the {rows_after_header} line(s) of rows_after_header"
                          if rows_after_header else "")
@@ -1257,7 +1298,19 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                               f"{skipped_after}", "has a header but no records")
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
-    return raw, lines, [str(h).strip() for h in header]
+    return raw, lines, [str(h).strip() for h in header], unnamed_surplus
+
+
+def _named_width(header: list) -> int:
+    """Fields of the header up to its last non-empty name.
+
+    A header line ending in a delimiter has an empty last name; data lines with that
+    many fields fewer are complete records, not lines cut short.
+    """
+    names = [str(name).strip() for name in header]
+    while len(names) > 1 and names[-1] == "":
+        names.pop()
+    return len(names)
 
 
 def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int) -> pd.DataFrame:
@@ -1322,16 +1375,18 @@ def _field_count(line: str, delimiter: str) -> int:
 
 
 def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndarray,
-                        delimiter: str, warnings) -> tuple[pd.DataFrame, np.ndarray]:
-    """Find lines with fewer fields than the header (read as empty cells by the parser)."""
-    if raw.empty or raw.shape[1] < 2:
+                        delimiter: str, warnings, named: int | None = None
+                        ) -> tuple[pd.DataFrame, np.ndarray]:
+    """Find lines with fewer fields than the header's `named` fields (up to its last
+    non-empty name; read as empty cells by the parser)."""
+    width = raw.shape[1] if named is None else min(named, raw.shape[1])
+    if raw.empty or width < 2:
         return raw, lines
-    # a short line reads as "" in its last column; only those lines are counted
-    candidates = np.flatnonzero((raw.iloc[:, -1] == "").to_numpy())
+    # a short line reads as "" in its last named column; only those lines are counted
+    candidates = np.flatnonzero((raw.iloc[:, width - 1] == "").to_numpy())
     if candidates.size == 0:
         return raw, lines
     text_lines = text.splitlines()
-    width = raw.shape[1]
     short = [int(row) for row in candidates
              if lines[row] - 1 < len(text_lines)
              and _field_count(text_lines[lines[row] - 1], delimiter) < width]
@@ -1342,19 +1397,28 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
     if inner:
         row = inner[0]
         raise InputFileError(
-            f"input file {str(path)!r}: line {int(lines[row])} has "
+            f"input file {str(path)!r}: line {int(lines[row])} "
+            f"({_shown_line(text_lines[lines[row] - 1])!r}) has "
             f"{_field_count(text_lines[lines[row] - 1], delimiter)} fields where the header has "
             f"{width}; a record cut short may hold a value cut mid-number; "
-            f"{len(inner)} such line(s) before the last. Complete or delete them in a copy of "
-            "the file (write missing values as empty cells between delimiters)")
+            f"{len(inner)} such line(s) before the last. Complete or delete them (or a footer) "
+            "in a copy of the file (write missing values as empty cells between delimiters)")
     fields = _field_count(text_lines[lines[last] - 1], delimiter)
-    note = (f"input file {str(path)!r}: its last line ({int(lines[last])}) has {fields} fields "
-            f"where the header has {width}, a record cut short (a logger stopped mid-write): "
-            "dropped")
+    shown = _shown_line(text_lines[lines[last] - 1])
+    # quoted, so that the user sees whether a record or a footer ("END OF FILE") was dropped
+    note = (f"input file {str(path)!r}: its last line ({int(lines[last])}: {shown!r}) has "
+            f"{fields} field(s) where the header has {width}, a record cut short (a logger "
+            "stopped mid-write) or a footer: dropped")
     if warnings is None:
         raise InputFileError(note.replace(": dropped", "; delete that line"))
     warnings.append(note)
     return raw.iloc[:last].reset_index(drop=True), lines[:last]
+
+
+def _shown_line(line: str) -> str:
+    """A line of the file as quoted in a message: stripped, at most 40 characters."""
+    line = line.strip()
+    return line if len(line) <= 40 else line[:40] + "..."
 
 
 def _check_header_line(text: str, delimiter: str, time_columns: tuple,
@@ -1384,21 +1448,27 @@ def _flag_key(column: str) -> str:
 
 def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_format, missing,
                delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
-               utc_offset, warnings) -> dict:
-    """Read one file: its stamps in local standard time and the numbers of each column."""
+               utc_offset, warnings, may_lack=False) -> dict:
+    """Read one file: its stamps in local standard time and the numbers of each column.
+
+    `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
+    instead of refused (one of several files).
+    """
     text, used_encoding = _decode(path, encoding)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
-    raw, lines, header = _read_text(path, text, delimiter, rows_before_header,
-                                    rows_after_header, warnings)
-    mapping, flag_columns = _resolve_columns(columns, units, list(raw.columns), header,
-                                             time_columns, flag_columns, path)
+    raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter, rows_before_header,
+                                                     rows_after_header, warnings)
+    mapping, flag_columns, lacking = _resolve_columns(
+        columns, units, list(raw.columns), header, time_columns, flag_columns, path, may_lack)
     source = str(path)
     stamp_text = join_time_columns(raw, time_columns)
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)
     values, missing_cells, nonfinite = {}, {}, {}
-    read = dict(mapping) | {_flag_key(column): column for column in flag_columns}
+    read = {name: column for name, column in mapping.items() if (name, column) not in lacking}
+    read |= {_flag_key(column): column for column in flag_columns
+             if ("nee_flag", column) not in lacking}
     for name, column in read.items():
         numbers, n_missing, absurd = _numbers(raw[column], column, name, missing, decimal,
                                               source, lines)
@@ -1423,10 +1493,11 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                 time_zone=time_zone)
     return {
         "source": source, "encoding": used_encoding, "mapping": mapping,
-        "flag_columns": flag_columns,
+        "flag_columns": flag_columns, "lacking": lacking, "file_columns": list(raw.columns),
         "stamps": stamps, "lines": lines[keep],
         "values": {name: column[keep] for name, column in values.items()},
         "records_read": len(raw), "duplicate_rows": int(duplicate.sum()),
+        "header_trailing_delimiter": bool(unnamed_surplus),
         "missing_cells": missing_cells, "nonfinite_cells": nonfinite,
         "conversions": {"hour_24": parsed.hour_24, "utc_offset": parsed.offset_converted,
                         "daylight_saving": parsed.daylight_saving,
@@ -1434,6 +1505,96 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                         **({"rounded_to_minute": parsed.rounded_to_minute}
                            if parsed.rounded_to_minute else {})},
     }
+
+
+#: Mapped variables a file among several may lack, read as missing for its records: a
+#: sensor added or removed during the record (a soil probe installed in the second year).
+#: Required variables, the site flag (its records would enter unjudged), storage (every
+#: NEE of the file would be missing) and PPFD are refused instead; ``rh`` only where
+#: ``vpd`` is read, not derived from it.
+_MAY_LACK = ("tsoil", "rh")
+
+
+def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
+                  warnings: list) -> tuple[list, dict]:
+    """Give the records of files lacking an optional mapped column missing values.
+
+    Returns the parts with NaN columns in place of the lacking ones, and for each such
+    variable ``(column, files lacking it, records read as missing)``. Raises where a
+    column is in no file, is not optional (:data:`_MAY_LACK`), or where a file lacking it
+    has an unmapped column of a similar name (a renamed column, not a missing sensor).
+    """
+    lacking = {}
+    for part in parts:
+        for key in part["lacking"]:
+            lacking.setdefault(key, []).append(part)
+    absent = {}
+    for (name, column), without in lacking.items():
+        having = [part["source"] for part in parts if (name, column) not in part["lacking"]]
+        first = without[0]
+        taken = (set(mapping.values()) | set(first["flag_columns"]) | set(time_columns)) - {
+            column}
+        free = [c for c in first["file_columns"] if c not in taken]
+        near = _near(column, free)
+        lacks = _file_list([part["source"] for part in without])
+        # a renamed column is among the lacking file's unmapped ones: named, for the user
+        unmapped = (f", whose unmapped columns are {_names(free)}" if free
+                    else ", whose every column is read")
+        setting = f"[input.columns] {name} = {setting_text(column)}"
+        if not having:
+            raise MissingColumnError(f"{setting}: no such column in any of the {len(parts)} "
+                                     f"input files{near}; "
+                                     f"{_columns_listing(first['file_columns'])} in "
+                                     f"{first['source']!r}")
+        optional = name in _MAY_LACK and (name != "rh" or "vpd" in mapping)
+        found = f"{setting}: the column is in {_file_list(having)} but not in {lacks}"
+        renamed = ("if one of them is the same quantity renamed, give it the same name in "
+                   "every file (in a copy); else " if free else "")
+        if near:
+            raise MissingColumnError(
+                f"{found}, which has an unmapped column of a similar name{near}: a column "
+                "renamed between files? Give the column the same name in every file (in a "
+                "copy), or read the files in separate runs")
+        if not optional:
+            why = {"nee_flag": "records without the site's flag would enter unjudged",
+                   "storage": "every NEE of a file without storage would be missing"}.get(
+                       name, f"{name} is needed in every record")
+            remove = ("" if name in REQUIRED else
+                      f", or remove {name} from [input.columns] to read no file's {name}")
+            raise MissingColumnError(
+                f"{found}{unmapped}; {why}: {renamed}add the column to {lacks} (empty cells "
+                f"where there is no value){remove}")
+        records = sum(len(part["stamps"]) for part in without)
+        absent[name] = (column, tuple(part["source"] for part in without), records)
+        rename = ("; if one of those columns is it renamed, give it the same name in every "
+                  "file (in a copy)" if free else "")
+        warnings.append(f"{name}: column {column!r} is in {_file_list(having)} but not in "
+                        f"{lacks}{unmapped}; its {records} record(s) there are read as missing "
+                        f"{name} (as if the column were there with empty cells){rename}; to "
+                        f"use no file's {name}, remove it from [input.columns]")
+    filled = []
+    for part in parts:
+        names = [name for name, _ in part["lacking"] if name in absent]
+        filled.append(part | {
+            "values": part["values"] | {name: np.full(len(part["stamps"]), np.nan)
+                                        for name in names},
+            "missing_cells": part["missing_cells"] | dict.fromkeys(names, 0),
+            "nonfinite_cells": part["nonfinite_cells"] | dict.fromkeys(names, 0)})
+    return filled, absent
+
+
+def _names(columns: list, shown: int = 8) -> str:
+    """``'a', 'b'`` or ``'a', 'b', ... and 5 more``: column names for a message."""
+    quoted = ", ".join(repr(str(c)) for c in columns[:shown])
+    return quoted + (f" and {len(columns) - shown} more" if len(columns) > shown else "")
+
+
+def _file_list(sources: list) -> str:
+    """``'a.csv'``, ``'a.csv' and 'b.csv'`` or ``'a.csv', 'b.csv' and 3 more files``."""
+    quoted = [repr(str(source)) for source in sources]
+    if len(quoted) > 3:
+        return f"{', '.join(quoted[:2])} and {len(quoted) - 2} more files"
+    return quoted[0] if len(quoted) == 1 else f"{', '.join(quoted[:-1])} and {quoted[-1]}"
 
 
 def _combine(parts: list) -> dict:
@@ -1478,6 +1639,7 @@ def _combine(parts: list) -> dict:
         "values": values, "merged_rows": merged,
         "records_read": sum(part["records_read"] for part in parts),
         "duplicate_rows": sum(part["duplicate_rows"] for part in parts),
+        "header_trailing_delimiter": sum(part["header_trailing_delimiter"] for part in parts),
         "missing_cells": {name: sum(part["missing_cells"][name] for part in parts)
                           for name in names},
         "nonfinite_cells": {name: sum(part["nonfinite_cells"][name] for part in parts)
@@ -1487,26 +1649,40 @@ def _combine(parts: list) -> dict:
 
 
 def _resolve_columns(columns: dict, units: dict, file_columns: list, header: list,
-                     time_columns: tuple, flag_columns: tuple, path: Path) -> tuple[dict, tuple]:
-    """Canonical name -> file column in canonical order, and the flag columns; check them."""
+                     time_columns: tuple, flag_columns: tuple, path: Path,
+                     may_lack: bool = False) -> tuple[dict, tuple, tuple]:
+    """Canonical name -> file column in canonical order, the flag columns, and the mapped
+    columns the file lacks; check them.
+
+    `may_lack`: a column of ``[input.columns]`` absent from the file is returned as
+    ``(name, column)`` among the lacking instead of raising (one of several files; the
+    caller decides with all files read). Mapping and flag columns include them.
+    """
+    taken = set(columns.values()) | set(time_columns) | set(flag_columns)
     for time_column in time_columns:
         if time_column not in file_columns:
             raise MissingColumnError(f"[input] time_column = {setting_text(time_column)}: no such column in "
-                                     f"{str(path)!r}{_near(time_column, file_columns)}; "
+                                     f"{str(path)!r}{_near(time_column, file_columns, taken)}; "
                                      f"{_columns_listing(file_columns)}")
+    lacking = []
     for column in flag_columns:
         if column not in file_columns:
+            if may_lack:
+                lacking.append(("nee_flag", column))
+                continue
             raise MissingColumnError(f"[input.columns] nee_flag = {setting_text(column)}: no such column in "
-                                     f"{str(path)!r}{_near(column, file_columns)}; "
+                                     f"{str(path)!r}{_near(column, file_columns, taken)}; "
                                      f"{_columns_listing(file_columns)}")
     mapping = {}
     for name, column in columns.items():
-        if column not in file_columns:
-            raise MissingColumnError(f"[input.columns] {name} = {setting_text(column)}: no such column in "
-                                     f"{str(path)!r}{_near(column, file_columns)}; "
-                                     f"{_columns_listing(file_columns)}")
         if column in time_columns:
             raise ConfigError(f"[input.columns] {name} = {setting_text(column)} is a time column")
+        if column not in file_columns:
+            if not may_lack:
+                raise MissingColumnError(f"[input.columns] {name} = {setting_text(column)}: no such column "
+                                         f"in {str(path)!r}{_near(column, file_columns, taken)}; "
+                                         f"{_columns_listing(file_columns)}")
+            lacking.append((name, column))
         mapping[name] = column
     used = set(mapping.values()) | set(time_columns) | set(flag_columns)
     for name in VARIABLES:
@@ -1539,7 +1715,8 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
         if column in duplicated:
             raise InputFileError(f"column {column!r} (for {name}) appears more than once in the "
                                  f"header of {str(path)!r}; rename the copies")
-    return {name: mapping[name] for name in READER_VARIABLES if name in mapping}, flag_columns
+    return ({name: mapping[name] for name in READER_VARIABLES if name in mapping}, flag_columns,
+            tuple(lacking))
 
 
 def _empty_required_message(name: str, mapping: dict, derived: list) -> str:
@@ -1567,10 +1744,15 @@ def _describe_mapping(mapping: dict, flag_columns: tuple) -> str:
     return ", ".join(f"{name} <- {column}" for name, column in pairs)
 
 
-def _near(name: str, options: list) -> str:
-    close = difflib.get_close_matches(name, [str(o) for o in options], n=1, cutoff=0.6)
+def _near(name: str, options: list, taken=()) -> str:
+    """" (did you mean 'x'?)" for the column of `options` nearest `name`, or "".
+
+    Columns in `taken` (read as another variable, or as the time) are never suggested.
+    """
+    free = [str(o) for o in options if o not in taken]
+    close = difflib.get_close_matches(name, free, n=1, cutoff=0.6)
     if not close:
-        stripped = [o for o in options if str(o).strip() == name.strip()]
+        stripped = [o for o in free if o.strip() == name.strip()]
         close = stripped[:1]
     return f" (did you mean {close[0]!r}?)" if close else ""
 

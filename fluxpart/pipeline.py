@@ -2,6 +2,8 @@
 
 Stages (each a pure function of its own module):
 
+0. the record fitted to its budget years: a fragment of less than a day left out, up to a
+   day absent at a year's edges added as gaps (:func:`fluxpart.timestamps.budget_year_edges`);
 1. solar geometry and the night mask (:mod:`fluxpart.solar`);
 2. screening: plausible ranges, the site's flag, despiking (:mod:`fluxpart.screening`);
    then, before any fit, the clock and site-geometry check (:mod:`fluxpart.clock`) and
@@ -291,6 +293,14 @@ def _prepare(frame, site: Site) -> tuple:
     return frame, notes
 
 
+def _budget_record(frame: pd.DataFrame, config: Config, interval: int) -> tuple:
+    """The frame on its budget years (:func:`fluxpart.timestamps.budget_year_edges`): a
+    fragment of less than a day left out, edge records up to a day added as gaps; and
+    the notes saying so."""
+    index, notes = timestamps.budget_year_edges(frame.index, interval, config.year_start)
+    return (frame.reindex(index) if notes else frame), notes
+
+
 def _labelled(timeseries: pd.DataFrame) -> pd.DataFrame:
     """Rejection reason, fill method and fill qualities as labelled (dictionary) columns."""
     labels = {"rejection_reason": screening.REASON_CODES, "nee_fill_method": _METHOD_LABELS}
@@ -385,12 +395,14 @@ def _clock_and_preflight(frame, site, config, interval, geometry, is_night, scre
             shift_applied_minutes=float(reader.get("shift_minutes") or 0.0))
     findings = preflight.preflight(
         frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),
-        screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval)
+        screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval,
+        reader.get("columns"))
     return verdict, findings
 
 
 def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
-                 time_marks: str | None = None, shift_applied_minutes: float = 0.0):
+                 time_marks: str | None = None, shift_applied_minutes: float = 0.0,
+                 columns: dict | None = None):
     """The clock verdict and every preflight finding of a record, as ``check`` lists them.
 
     Parameters
@@ -405,6 +417,8 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
         The file's declared stamp convention, for the clock message.
     shift_applied_minutes : float, optional
         Minutes the reader subtracted from the file's stamps.
+    columns : dict, optional
+        Canonical name -> file column (``ReadReport.columns``), named in messages.
 
     Returns
     -------
@@ -416,10 +430,13 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
     config = Config() if config is None else config
     frame, _ = _prepare(frame, site)
     interval = _validate(frame)
+    frame, edges = _budget_record(frame, config, interval)
     geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
-    return _clock_and_preflight(frame, site, config, interval, geometry, is_night, screens,
-                                {"time_marks": time_marks,
-                                 "shift_minutes": shift_applied_minutes})
+    verdict, findings = _clock_and_preflight(
+        frame, site, config, interval, geometry, is_night, screens,
+        {"time_marks": time_marks, "shift_minutes": shift_applied_minutes, "columns": columns})
+    return verdict, findings + [preflight.Finding("annual budget", note, False)
+                                for note in edges]
 
 
 def _refuse(verdict, findings, config) -> None:
@@ -463,6 +480,7 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     config = Config() if config is None else config
     frame, _ = _prepare(frame, site)
     interval = _validate(frame)
+    frame, _ = _budget_record(frame, config, interval)
     _, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     table, _, _, _ = _ustar_thresholds(frame, screens.screened, is_night, site, config)
     return screens.counts.drop(labels=["low_ustar"], errors="ignore"), table
@@ -597,7 +615,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         ``nee_flag``) on a regular 30- or 60-minute DatetimeIndex of interval starts
         in local standard time; one or more years. Not modified. A tz-aware index
         is converted with ``site.utc_offset``; other columns are ignored (each with
-        a warning).
+        a warning). A budget year at either end holding less than a day of records is
+        left out, and up to a day absent at a year's edges is added as gaps
+        (:func:`fluxpart.timestamps.budget_year_edges`; each with a warning).
     site : Site
         Location of the tower.
     config : Config, optional
@@ -623,11 +643,12 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         raise ConfigError(f"site must be a fluxpart.Site, got {type(site).__name__}")
     frame, notes = _prepare(frame, site)
     interval = _validate(frame)
+    frame, edges = _budget_record(frame, config, interval)
     frame = frame.copy()
     frame.index = frame.index.rename("time")
     temperature = _temperature(config, frame)
     warnings = [f"input: {text}" for text in [*(provenance or {}).get("reader", {}).get(
-        "warnings", []), *notes]]
+        "warnings", []), *notes]] + [f"budget year: {text}" for text in edges]
 
     def step(label: str) -> None:
         _LOG.info("%s: %s", site.name, label)     # the standard logging route (silent by default)

@@ -18,7 +18,9 @@ Conditions and the stage they affect:
 condition                                 stage                               fatal
 ========================================  ==================================  =========
 a required variable constant              its stages (see ``_CONSTANT``)      NEE, Rg,
-                                                                              temperature
+                                                                              temperature,
+                                                                              u*
+u* with a year's median of a wind speed   u* filter                           yes
 record shorter than one E0 window, or no  nighttime partitioning (E0)         unless
 E0 window with enough night records                                           e0_fallback
 spanning enough temperature
@@ -77,6 +79,18 @@ _CONSTANT_CONSEQUENCE = {
               "would take every night's flux as measured and state no u* uncertainty); map "
               "the measured friction velocity as ustar"),
 }
+# Wind speed mapped as u* (our criterion): in the logarithmic wind profile u* = κU /
+# ln((z - d) / z0) (κ = 0.41, a textbook fact (m)), so u* is at most about a quarter of the
+# wind speed U even over the roughest canopy ((z - d) / z0 ≈ 5, a forest's tower) and a
+# tenth or less over grass and crops ((z - d) / z0 ≈ 100-300); stable nights lower it
+# further. A year's median wind at tower height over land rarely exceeds 5-6 m s-1 even at
+# exposed sites (m), so a year's median u* stays below 0.25 x 6 = 1.5 m s-1 in the roughest
+# and windiest case, and typical medians are 0.2-0.7 m s-1 (m); tall forests reach 1.5-2
+# m s-1 in single half-hours of a storm, never as a year's median. A year's median wind
+# speed, in turn, is above 1.5 m s-1 at almost every tower: wind speed (or u* in cm s-1)
+# mapped as ustar is refused. A sheltered site whose median wind stays below it passes.
+_WIND_AS_USTAR_MEDIAN = 1.5   # [m s-1]
+_WIND_AS_USTAR_DAYS = 30.0    # days of present u* a calendar year needs to be judged
 _DISTINCT_VALUES = 3          # fewer distinct present values than this is "constant"
 # Stuck sensors (our choice): a variable repeating one value over this many days of
 # consecutive present records, other than values its air can hold for that long (VPD 0
@@ -153,6 +167,32 @@ def _constant(frame: pd.DataFrame, temperature: str) -> list:
                 f"unconnected sensor, or a placeholder column; the stage needs a varying "
                 f"{name}{_CONSTANT_CONSEQUENCE.get(name, '')}"), fatal))
     return findings
+
+
+def _wind_as_ustar(frame: pd.DataFrame, interval_minutes: float, sources=None) -> list:
+    """A u* whose yearly median is that of a wind speed (see ``_WIND_AS_USTAR_MEDIAN``)."""
+    if "ustar" not in frame.columns:
+        return []
+    ustar = pd.to_numeric(frame["ustar"], errors="coerce")
+    ustar = ustar[np.isfinite(ustar.to_numpy(dtype=float))]
+    years = ustar.groupby(pd.DatetimeIndex(ustar.index).year)
+    median, count = years.median(), years.size()
+    judged = count >= _WIND_AS_USTAR_DAYS * 1440.0 / interval_minutes
+    windy = median[judged & (median > _WIND_AS_USTAR_MEDIAN)]
+    if windy.empty:
+        return []
+    year = int(windy.idxmax())
+    values = ustar[pd.DatetimeIndex(ustar.index).year == year].to_numpy(dtype=float)
+    column = (sources or {}).get("ustar")
+    setting = ("[input.columns] ustar" + (f" = {column!r}" if column else ""))
+    return [Finding("u* filter", (
+        f"ustar in {year} has a median of {windy[year]:.2f} m s-1 (95th percentile "
+        f"{np.percentile(values, 95):.2f}, largest {values.max():.2f}) in {values.size} "
+        f"records: friction velocity over land keeps a year's median below "
+        f"{_WIND_AS_USTAR_MEDIAN:g} m s-1 (u* = κU/ln((z-d)/z0), at most about a quarter of "
+        "the wind speed U), so this reads as wind speed (or u* in cm s-1) and its threshold "
+        f"would keep calm nights as measured; {setting} must name the friction velocity "
+        "column (m s-1)"), True)]
 
 
 def _runs(values: np.ndarray, min_length: float = 2):
@@ -342,7 +382,7 @@ def _days_text(span_days: float, interval_minutes: float) -> str:
 
 
 def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, rg_high,
-              latitude: float, config, interval_minutes: float) -> list:
+              latitude: float, config, interval_minutes: float, sources=None) -> list:
     """Find every condition that would make a stage fail or fall back.
 
     Parameters
@@ -363,6 +403,9 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         The settings (window lengths, minimum counts, fall-backs).
     interval_minutes : float
         Record interval [min].
+    sources : dict, optional
+        Canonical name -> file column it was read from (the reader's record), to name
+        the column in a message.
 
     Returns
     -------
@@ -375,6 +418,8 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     temperature_name = ("tair" if config.respiration_driver == "auto"
                         else config.respiration_driver)
     findings = _constant(frame, temperature_name)
+    if not findings:                     # a constant u* is named above
+        findings += _wind_as_ustar(frame, interval_minutes, sources)
     if len(index) == 0:
         return [Finding("whole record", "no records", True)]
     if not findings:                     # a wholly constant column is named above

@@ -7,10 +7,20 @@ from dataclasses import asdict, dataclass
 
 from .errors import ConfigError
 
-__all__ = ["CANOPIES", "Site"]
+__all__ = ["CANOPIES", "FRACTIONAL_UTC_OFFSETS", "Site"]
 
 #: Canopy height classes of ``[site] canopy``.
 CANOPIES = ("short", "tall")
+
+#: Standard-time UTC offsets in use that are not whole hours [h] (Marquesas -9.5,
+#: Newfoundland -3.5, Iran 3.5, Afghanistan 4.5, India 5.5, Nepal 5.75, Myanmar 6.5,
+#: Eucla 8.75, Central Australia 9.5, Lord Howe 10.5, Chatham Islands 12.75; the time
+#: zones of the IANA tz database, common knowledge (m)). Every other standard offset is
+#: a whole number of hours from -12 to 14.
+FRACTIONAL_UTC_OFFSETS = frozenset({-9.5, -3.5, 3.5, 4.5, 5.5, 5.75, 6.5, 8.75, 9.5, 10.5,
+                                    12.75})
+_UTC_OFFSETS = tuple(sorted(set(float(hour) for hour in range(-12, 15))
+                            | FRACTIONAL_UTC_OFFSETS))
 
 
 @dataclass(frozen=True)
@@ -27,7 +37,9 @@ class Site:
         Geographic longitude, east positive [degrees], within [-180, 180].
     utc_offset : float
         Offset of the record's local standard time from UTC [hours], within
-        [-12, 14]; e.g. 1.0 for Central European standard time.
+        [-12, 14]; e.g. 1.0 for Central European standard time. A whole number of
+        hours or one of :data:`FRACTIONAL_UTC_OFFSETS` (5.5 for India): an offset no
+        time zone uses (1.3, or 5.3 for 5 h 30 min) is refused.
     canopy : {"tall", "short"}
         Height class of the vegetation around the tower: ``"tall"`` (forest,
         default) or ``"short"`` (crops, grass, shrubs of a metre or two). It sets
@@ -70,6 +82,7 @@ class Site:
                 raise ConfigError(f"[site] {key} = {shown} is out of range: expected a value "
                                   f"from {low:g} to {high:g}, in {units[key]}")
             object.__setattr__(self, key, float(value))
+        _check_utc_offset(self.utc_offset)
         if not isinstance(self.canopy, str) or self.canopy not in CANOPIES:
             raise ConfigError(f"[site] canopy = {setting_text(self.canopy)} is not allowed: "
                               "expected \"short\" (crops, grass) or \"tall\" (forest)")
@@ -80,3 +93,28 @@ class Site:
     def to_dict(self) -> dict:
         """Return the site as a plain dict (for the manifest)."""
         return asdict(self)
+
+
+def _check_utc_offset(offset: float) -> None:
+    """Refuse an offset [h] that no time zone uses, naming the nearest ones that are used.
+
+    A clock set to such an offset does not exist: the value is a typing slip (1.3 for
+    1.0) or hours and minutes written as a decimal (5.30 for 5 h 30 min = 5.5), and it
+    would shift the sun in every record by the difference.
+    """
+    if any(abs(offset - used) < 1e-9 for used in _UTC_OFFSETS):
+        return
+    below = max(used for used in _UTC_OFFSETS if used < offset)
+    above = min(used for used in _UTC_OFFSETS if used > offset)
+    hours, fraction = divmod(abs(offset), 1.0)
+    minutes = round(fraction * 100.0, 6)
+    as_minutes = math.copysign(hours + minutes / 60.0, offset)
+    hint = ""
+    if minutes in (30.0, 45.0) and as_minutes in _UTC_OFFSETS:
+        sign = "-" if offset < 0 else ""
+        hint = (f"; hours and minutes are written as decimal hours ({sign}{int(hours)} h "
+                f"{int(minutes)} min = {as_minutes:g})")
+    raise ConfigError(
+        f"[site] utc_offset = {offset:g} is no time zone's offset: standard time is a whole "
+        f"number of hours from UTC or one of {', '.join(f'{v:g}' for v in sorted(FRACTIONAL_UTC_OFFSETS))};"
+        f" the nearest are {below:g} and {above:g}{hint}")

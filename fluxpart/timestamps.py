@@ -32,6 +32,7 @@ from .errors import (
 __all__ = [
     "INTERVALS_MINUTES",
     "ParsedStamps",
+    "budget_year_edges",
     "budget_year_numbers",
     "budget_years",
     "check_order",
@@ -809,6 +810,108 @@ def budget_year_numbers(index, year_start: str = "01-01") -> np.ndarray:
     index = pd.DatetimeIndex(index)
     before = (index.month < month) | ((index.month == month) & (index.day < day))
     return np.asarray(index.year, dtype=np.int64) - before.astype(np.int64)
+
+
+def budget_year_edges(index, interval_minutes: int, year_start: str = "01-01",
+                      edge_days: float = 1.0) -> tuple[pd.DatetimeIndex, list]:
+    """The record's interval starts fitted to its budget years, and what was changed.
+
+    A file cut by the dates of its stamps does not hold whole budget years where its
+    stamps mark interval ends (00:00 on 1 January closes the last interval of the year
+    before, and the last interval of the year is stamped on the next day) or where the
+    logger started or stopped within a day of the year's turn. Such a year's budget
+    would be partial for a few records, and the fragment before or after it a budget
+    year of its own. Here:
+
+    - a budget year at either end of a record of several budget years that holds fewer
+      than one day of records (a fragment) is left out, where another year keeps a
+      day or more;
+    - a budget year whose only absent records are at its edges, at most `edge_days`
+      of them, gets those records as stamps of their own (gaps, filled like any other
+      gap), so it is complete.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Regular interval starts in local standard time.
+    interval_minutes : int
+        Record interval [min].
+    year_start : str, optional
+        First day of the budget year, ``"MM-DD"`` (:func:`budget_years`).
+    edge_days : float, optional
+        Largest span of records at a year's edges added as gaps [days]; default one day
+        (our choice: a day is the span of the fragment left out, and a day of gaps at
+        the year's turn is filled from the days beside it like any other gap).
+
+    Returns
+    -------
+    index : pandas.DatetimeIndex
+        The interval starts to process, named ``"time"`` (`index` itself where
+        nothing changes).
+    notes : list of str
+        One sentence per fragment left out and per year completed at its edges, for the
+        run's warnings; empty where nothing changes.
+    """
+    index = pd.DatetimeIndex(index)
+    if len(index) == 0:
+        return index, []
+    step = pd.Timedelta(minutes=interval_minutes)
+    per_day = 1440 // int(interval_minutes)
+    table = budget_years(index, year_start)
+    years = table["year"].to_numpy()
+    label = ("{}" if year_start == "01-01" else "budget year {}")
+    counts = pd.Series(years).value_counts()
+    notes = []
+    keep = np.ones(len(index), dtype=bool)
+    whole = counts[counts >= per_day]
+    if len(counts) > 1 and not whole.empty:
+        first_year, last_year = int(years[0]), int(years[-1])
+        causes = {first_year: "a file of stamps that mark interval ends, beginning at 00:00 "
+                              f"on the first day of {label.format(first_year + 1)}, holds the "
+                              f"last interval of {label.format(first_year)}",
+                  last_year: "a file of stamps that mark interval starts, ending at 00:00 on "
+                             f"the first day of {label.format(last_year)}, holds its first "
+                             "interval"}
+        for year in sorted(causes):
+            if counts[year] < per_day:
+                mine = years == year
+                keep &= ~mine
+                first, last = index[mine][0], index[mine][-1]
+                notes.append(
+                    f"{label.format(year)}: only {int(counts[year])} record(s) "
+                    f"({first:%Y-%m-%d %H:%M} .. {last:%Y-%m-%d %H:%M}, interval starts), less "
+                    "than a day: left out of the run and not budgeted (e.g. "
+                    f"{causes[year]})")
+    kept, kept_table = index[keep], table[keep]
+    start, end = kept[0], kept[-1]
+    first_year = kept_table.iloc[0]
+    last_year = kept_table.iloc[-1]
+    before = int((start - first_year["period_start"]) / step)
+    after = int((last_year["period_end"] - step - end) / step)
+    if first_year["year"] == last_year["year"]:
+        add_before = add_after = before + after <= edge_days * per_day
+    else:
+        add_before, add_after = before <= edge_days * per_day, after <= edge_days * per_day
+    if add_before and before > 0:
+        start = first_year["period_start"]
+        notes.append(_edge_note(label.format(first_year["year"]), start, before, step,
+                                "start"))
+    if add_after and after > 0:
+        end = last_year["period_end"] - step
+        notes.append(_edge_note(label.format(last_year["year"]), end - (after - 1) * step,
+                                after, step, "end"))
+    if not notes:
+        return index, []
+    return pd.date_range(start, end, freq=step, name="time"), notes
+
+
+def _edge_note(year: str, first, count: int, step, edge: str) -> str:
+    last = first + (count - 1) * step
+    cause = (" (e.g. a file of stamps that mark interval ends, ending on the year's last day, "
+             "lacks its last interval)" if edge == "end" else "")
+    return (f"{year}: {count} record(s) at its {edge} ({first:%Y-%m-%d %H:%M} .. "
+            f"{last:%Y-%m-%d %H:%M}, interval starts) are not in the input: added as gaps and "
+            f"filled like any other, so the year is complete{cause}")
 
 
 def _month_day(year_start) -> tuple[int, int]:

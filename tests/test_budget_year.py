@@ -152,6 +152,32 @@ def test_pipeline_budget_year_from_july():
     assert any("budget year" in text and "partial" in text for text in result.warnings)
 
 
+def test_pipeline_budgets_a_year_cut_by_end_stamp_dates_whole():
+    """A year read from end stamps 00:00 on 1 January .. 23:30 on 31 December (review
+    0.12.0, layout c84): no one-record budget year before it, and its absent last interval
+    filled as a gap, so the year is complete; both stated among the warnings."""
+    import warnings
+
+    frame, _ = demo.site_year(seed=0)
+    year = int(frame.index[0].year)
+    before = frame.iloc[:1].set_axis(frame.index[:1] - pd.Timedelta(minutes=30))
+    shifted = pd.concat([before, frame.iloc[:-1]])
+    shifted.index.name = "time"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        result = process(shifted, demo.site(), Config(ustar_bootstrap_draws=0,
+                                                      random_error_draws=50))
+    assert list(result.annual.index) == [year] and bool(result.annual.loc[year, "complete"])
+    assert int(result.annual.loc[year, "records"]) == len(frame)
+    last = result.timeseries.iloc[-1]
+    assert result.timeseries.index[-1] == frame.index[-1] and np.isnan(last["nee"])
+    assert last["nee_fill_quality"] in ("A", "B", "C") and np.isfinite(last["nee_filled"])
+    texts = [w for w in result.warnings if w.startswith("budget year:")]
+    assert len(texts) == 2 and f"{year - 1}: only 1 record(s)" in texts[0]
+    assert f"{year}: 1 record(s) at its end" in texts[1]
+    assert not any("partial" in w for w in result.warnings)
+
+
 def test_cli_names_the_budget_year_periods(two_years):
     """The printed annual table says which days each budget year covers (not for 01-01)."""
     from fluxpart.cli import _format_annual

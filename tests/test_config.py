@@ -207,6 +207,28 @@ def test_site_range_errors(kwargs, pattern):
         Site(**values)
 
 
+@pytest.mark.parametrize(("offset", "pattern"), [
+    (1.3, r"\[site\] utc_offset = 1.3 is no time zone's offset: .*the nearest are 1 and 2$"),
+    (5.3, r"utc_offset = 5.3 .*the nearest are 5 and 5.5; .*\(5 h 30 min = 5.5\)"),
+    (-3.3, r"utc_offset = -3.3 .*the nearest are -3.5 and -3; .*\(-3 h 30 min = -3.5\)"),
+    (12.5, r"utc_offset = 12.5 .*the nearest are 12 and 12.75$"),
+])
+def test_site_refuses_an_offset_no_time_zone_uses(offset, pattern):
+    """A utc_offset between the offsets in use is refused, naming the nearest (review 0.12.0).
+
+    The offsets in use, common knowledge (m): whole hours, and -9.5 (Marquesas), -3.5
+    (Newfoundland), 5.5 (India), 5.75 (Nepal), 12.75 (Chatham Islands) among others.
+    """
+    with pytest.raises(ConfigError, match=pattern):
+        Site(name="x", latitude=0.0, longitude=0.0, utc_offset=offset)
+
+
+@pytest.mark.parametrize("offset", [-12, -9.5, -3.5, 0, 5.5, 5.75, 8.75, 12.75, 14])
+def test_site_accepts_the_offsets_in_use(offset):
+    """Whole hours and the fractional offsets of real time zones (m) are accepted."""
+    assert Site(name="x", latitude=0.0, longitude=0.0, utc_offset=offset).utc_offset == offset
+
+
 def test_site_config_reads_the_canopy(tmp_path):
     """[site] canopy in a site TOML reaches the Site; absent, the canopy is tall."""
     from fluxpart import demo

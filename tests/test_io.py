@@ -849,6 +849,65 @@ def test_several_files_equal_one_file(tmp_path):
     assert len(report.files) == 2 and "identical in overlapping files" in str(report)
 
 
+def test_optional_column_lacking_in_one_of_several_files_reads_as_missing(tmp_path):
+    """A soil temperature in the first file only (a probe added or removed mid-record) is
+    read as missing for the second file's records, named in a warning, the summary and the
+    manifest's reader record (review 0.12.0, layout c88)."""
+    records = _records(periods=200)
+    first = _write(tmp_path / "a.csv", records.iloc[:120])
+    second = _write(tmp_path / "b.csv", records.iloc[120:].drop(columns="t_soil"))
+    frame, report = _read([first, second], columns=MAPPING | {"tsoil": "t_soil"})
+    whole = _plain(tmp_path, records, columns=MAPPING | {"tsoil": "t_soil"})
+    pd.testing.assert_frame_equal(frame.iloc[:120], whole.iloc[:120], check_freq=False)
+    assert frame["tsoil"].iloc[120:].isna().all()
+    pd.testing.assert_frame_equal(frame.drop(columns="tsoil"), whole.drop(columns="tsoil"))
+    warning = [w for w in report.warnings if w.startswith("tsoil:")]
+    assert len(warning) == 1
+    assert re.search(r"'t_soil' is in '.*a.csv' but not in '.*b.csv', whose unmapped columns "
+                     r"are 'rel_hum'; its 80 record\(s\) there are read as missing tsoil .*; "
+                     r"if one of those columns is it renamed, give it the same name", warning[0])
+    assert report.to_dict()["absent_column_records"] == {"tsoil": 80}
+    assert re.search(r"not in every file tsoil <- t_soil: absent from '.*b.csv', 80 record",
+                     str(report))
+
+
+def test_required_or_renamed_column_lacking_in_one_file_is_refused_accurately(tmp_path):
+    """A required column, a site flag or rh that VPD is derived from, lacking in one of
+    several files, is refused naming the files that have it and lack it and the fix; a
+    lacking optional column with a similar unmapped one (a rename) is refused with that
+    hint; a column already read as another variable is never suggested (review 0.12.0)."""
+    records = _records(periods=200).rename(columns={"t_air": "air_temp_c"})
+    records["qc"] = 0
+    mapping = MAPPING | {"tair": "air_temp_c"}
+    first = _write(tmp_path / "a.csv", records.iloc[:120])
+    for column, extra, fix in (("co2_flux", {}, r"nee is needed in every record: if one of "
+                                                r"them is the same quantity renamed, give it "
+                                                r"the same name in every file \(in a copy\); "
+                                                r"else add the column to '.*b.csv' \(empty "
+                                                r"cells where there is no value\)$"),
+                               ("qc", {"nee_flag": "qc"}, r"records without the site's flag "
+                                                          r"would enter unjudged"),
+                               ("rel_hum", {"rh": "rel_hum", "vpd": None}, r"rh is needed")):
+        columns = {k: v for k, v in (mapping | extra).items() if v is not None}
+        second = _write(tmp_path / "b.csv", records.iloc[120:].drop(columns=column))
+        with pytest.raises(MissingColumnError, match=rf"\[input.columns\] \w+ = \"{column}\": "
+                                                     rf"the column is in '.*a.csv' but not in "
+                                                     rf"'.*b.csv', whose unmapped columns are "
+                                                     rf"'.*'; {fix}"):
+            _read([first, second], columns=columns)
+    second = _write(tmp_path / "b.csv", records.iloc[120:].rename(columns={"t_soil": "T_soil"}))
+    with pytest.raises(MissingColumnError, match=r"has an unmapped column of a similar name "
+                                                 r"\(did you mean 'T_soil'\?\): a column renamed"):
+        _read([first, second], columns=mapping | {"tsoil": "t_soil"})
+    with pytest.raises(MissingColumnError, match=r"tsoil = \"soil_temp_5cm\": no such column "
+                                                 r"in '.*a.csv'; the file has") as error:
+        _read(first, columns=mapping | {"tsoil": "soil_temp_5cm"})
+    assert "did you mean" not in str(error.value)
+    with pytest.raises(MissingColumnError, match=r"tsoil = \"soil_temp_5cm\": no such column "
+                                                 r"in any of the 2 input files"):
+        _read([first, second], columns=mapping | {"tsoil": "soil_temp_5cm"})
+
+
 def test_glob_and_list_in_site_config(tmp_path):
     """[input] path as a glob or a list gives the same frame; the input hash covers all files."""
     records = _records(periods=200)
@@ -904,7 +963,7 @@ def test_last_line_cut_short_is_dropped_and_named(tmp_path):
     cut.write_text("\n".join(lines[:-1] + [lines[-1][:25]]))   # no final newline either
     frame, report = _read(cut)
     pd.testing.assert_frame_equal(frame, _read(path)[0].iloc[:-1], check_freq=False)
-    named = [w for w in report.warnings if "cut.csv" in w and "last line (201)" in w]
+    named = [w for w in report.warnings if "cut.csv" in w and "last line (201: " in w]
     assert len(named) == 1 and "dropped" in named[0]
 
 
@@ -915,7 +974,7 @@ def test_short_line_inside_a_file_is_an_error_naming_it(tmp_path):
     lines = _write(tmp_path / "t.csv", records).read_text().splitlines()
     short = tmp_path / "short.csv"
     short.write_text("\n".join(lines[:50] + [lines[50][:20]] + lines[51:]) + "\n")
-    with pytest.raises(InputFileError, match=r"'.*short.csv': line 51 has 2 fields where the "
+    with pytest.raises(InputFileError, match=r"'.*short.csv': line 51 \('[^']*'\) has 2 fields where the "
                                              r"header has \d+; a record cut short"):
         _read(short)
     long = tmp_path / "long.csv"
@@ -933,6 +992,58 @@ def test_empty_last_cells_are_not_a_cut_line(tmp_path):
     assert path.read_text().splitlines()[-1].endswith(",")
     frame, report = _read(path)
     assert len(frame) == 200 and not any("cut short" in w for w in report.warnings)
+
+
+def test_footer_after_the_records_is_dropped_quoted_or_refused(tmp_path):
+    """A footer line ("END OF FILE") after the records: as the last line it is dropped with a
+    warning quoting it, every record kept; two footer lines are refused naming the first,
+    and a footer with every delimiter names its line and stamp (review 0.12.0, layout c54)."""
+    records = _records(periods=200)
+    path = _write(tmp_path / "t.csv", records)
+    text = path.read_text()
+    footer = tmp_path / "footer.csv"
+    footer.write_text(text + "END OF FILE\n")
+    frame, report = _read(footer)
+    pd.testing.assert_frame_equal(frame, _read(path)[0])
+    assert report.records_read == 200
+    assert any("last line (202: 'END OF FILE')" in w and "dropped" in w
+               for w in report.warnings)
+    two = tmp_path / "two.csv"
+    two.write_text(text + "END OF FILE\nrecords: 200\n")
+    with pytest.raises(InputFileError, match=r"line 202 \('END OF FILE'\) has 1 fields .* "
+                                             r"1 such line\(s\) before the last"):
+        _read(two)
+    padded = tmp_path / "padded.csv"
+    padded.write_text(text + "END OF FILE" + "," * 7 + "\n")
+    with pytest.raises(TimestampError, match=r"line 202 of '.*padded.csv' has stamp 'END OF "
+                                             r"FILE'"):
+        _read(padded)
+
+
+def test_header_closed_by_a_delimiter_the_data_lines_lack(tmp_path):
+    """A header line ending in a delimiter (an empty last name) over data lines without
+    it is read whole and noted in the summary; lines cut short inside it are still
+    refused and a cut last line still dropped (review 0.12.0, layout c100)."""
+    records = _records(periods=200)
+    lines = _write(tmp_path / "t.csv", records).read_text().splitlines()
+    closed = tmp_path / "closed.csv"
+    closed.write_text("\n".join([lines[0] + ","] + lines[1:]) + "\n")
+    frame, report = _read(closed)
+    pd.testing.assert_frame_equal(frame, _read(tmp_path / "t.csv")[0])
+    assert report.header_trailing_delimiter == 1
+    assert "ends with a delimiter the data lines lack" in str(report)
+    assert report.to_dict()["header_trailing_delimiter"] == 1
+    assert "header_trailing_delimiter" not in _read(tmp_path / "t.csv")[1].to_dict()
+    short = tmp_path / "short.csv"
+    short.write_text("\n".join([lines[0] + ","] + lines[1:50] + [lines[50][:20]] + lines[51:])
+                     + "\n")
+    with pytest.raises(InputFileError, match=r"'.*short.csv': line 51 \('[^']*'\) has 2 fields where the "
+                                             r"header has 8; a record cut short"):
+        _read(short)
+    cut = tmp_path / "cut.csv"
+    cut.write_text("\n".join([lines[0] + ","] + lines[1:-1] + [lines[-1][:20]]) + "\n")
+    frame, report = _read(cut)
+    assert len(frame) == 199 and any("last line (201: " in w for w in report.warnings)
 
 
 def test_conflicting_overlap_names_both_files_and_lines(tmp_path):

@@ -48,11 +48,17 @@ def test_one_day_of_data_stops_before_e0(demo_frame):
 
 
 def test_a_year_one_record_short_does_not_read_as_365_days(demo_frame):
-    """A year without its last record (a truncated last line dropped) is partial; the finding
-    says by how much instead of 'covers 365.0 days, less than a year' (fresh-eyes campaign)."""
-    _, findings = check_record(demo_frame.iloc[:-1], demo.site())
+    """A record one record short of a year is partial where its budget years do not end
+    with it (July–June); the finding says by how much instead of 'covers 365.0 days, less
+    than a year' (fresh-eyes campaign). Where its calendar year does, the absent record is
+    added as a gap and the year is whole (review 0.12.0)."""
+    _, findings = check_record(demo_frame.iloc[:-1], demo.site(), Config(year_start="07-01"))
     text = [str(f) for f in findings if f.stage == "annual budget"]
     assert len(text) == 1 and "364.98 days (1 record(s) short of 365 days)" in text[0]
+    _, findings = check_record(demo_frame.iloc[:-1], demo.site())
+    text = [str(f) for f in findings if f.stage == "annual budget"]
+    assert len(text) == 1 and "1 record(s) at its end" in text[0]
+    assert "so the year is complete" in text[0]
 
 
 def test_e0_fallback_turns_the_e0_finding_into_a_fallback(demo_frame):
@@ -72,6 +78,43 @@ def test_constant_nee_is_named_with_its_stage(demo_frame):
     assert constant[0].stage == "gap filling and both partitionings"
     with pytest.raises(InsufficientDataError, match="nee is constant"):
         process(frame, demo.site())
+
+
+def test_wind_speed_mapped_as_ustar_stops_the_run(demo_frame):
+    """Wind speed mapped as u* is refused naming ustar and its setting (review 0.12.0, c25).
+
+    The wind speed is made from the demo's u* by the logarithmic wind profile
+    U = u* ln((z - d)/z0) / κ with κ = 0.41 and (z - d)/z0 = 200 for a grassland tower
+    (textbook values (m)): a yearly median near 3 m s-1, as at most towers (m).
+    """
+    wind = demo_frame.assign(ustar=demo_frame["ustar"] * np.log(200.0) / 0.41)
+    assert 2.5 < wind["ustar"].median() < 3.5
+    _, findings = check_record(wind, demo.site(), columns={"ustar": "wind_speed"})
+    refused = [f for f in findings if f.stage == "u* filter"]
+    assert len(refused) == 1 and refused[0].fatal
+    assert "[input.columns] ustar = 'wind_speed' must name the friction velocity" in (
+        refused[0].message)
+    with pytest.raises(InsufficientDataError, match=r"u\* filter: ustar in \d{4} has a median "
+                                                    r"of \d\.\d\d m s-1"):
+        process(wind, demo.site(), Config(ustar_bootstrap_draws=0))
+
+
+def test_windy_forest_ustar_and_generated_sites_are_not_taken_for_wind(demo_frame):
+    """A u* whose yearly median is 1.2 m s-1 (beyond a windy tall forest's, about 0.5-1
+    m s-1 (m)) with storm half-hours up to 2.6 m s-1, and every generated archetype's u*,
+    pass: the criterion is a yearly median above 1.5 m s-1."""
+    from fluxpart import scenarios
+
+    scale = 1.2 / demo_frame["ustar"].median()
+    windy = demo_frame.assign(ustar=np.minimum(demo_frame["ustar"] * scale, 2.6))
+    assert windy["ustar"].max() == 2.6 and windy["ustar"].median() == pytest.approx(1.2)
+    _, findings = check_record(windy, demo.site())
+    assert "u* filter" not in _stages(findings)
+    for seed in range(21):                       # three site-years of each archetype
+        site_year = scenarios.generate(seed)
+        assert np.nanmedian(site_year.frame["ustar"]) < 1.0
+        _, findings = check_record(site_year.frame, site_year.site, Config(clock_check="off"))
+        assert "u* filter" not in _stages(findings)
 
 
 def test_rg_zero_all_year_at_78_north_names_the_daylight():

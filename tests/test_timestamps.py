@@ -14,6 +14,7 @@ import pytest
 
 from fluxpart.errors import ConfigError, SpacingError, TimestampError
 from fluxpart.timestamps import (
+    budget_year_edges,
     budget_year_numbers,
     budget_years,
     check_time_zone,
@@ -21,6 +22,53 @@ from fluxpart.timestamps import (
     interval_change_warning,
     parse_stamps,
 )
+
+
+def test_budget_year_edges_of_a_file_cut_by_end_stamp_dates():
+    """End stamps 00:00 on 1 January .. 23:30 on 31 December (review 0.12.0, layout c84):
+    the record's first interval is the last of the year before, and the year lacks its
+    last; the fragment is left out, the last interval added, 17,520 records (365 days x
+    48, the calendar) from 00:00 to 23:30."""
+    starts = pd.date_range("2021-01-01 00:00", "2021-12-31 23:30", freq="30min") - pd.Timedelta(
+        minutes=30)
+    index, notes = budget_year_edges(starts, 30)
+    assert len(index) == 365 * 48 and index.name == "time"
+    assert (index[0], index[-1]) == (pd.Timestamp("2021-01-01 00:00"),
+                                     pd.Timestamp("2021-12-31 23:30"))
+    assert notes[0].startswith("2020: only 1 record(s) (2020-12-31 23:30 .. 2020-12-31 23:30")
+    assert "left out of the run and not budgeted" in notes[0]
+    assert notes[1].startswith("2021: 1 record(s) at its end (2021-12-31 23:30")
+    assert "added as gaps and filled like any other, so the year is complete" in notes[1]
+
+
+@pytest.mark.parametrize(("first", "last", "minutes", "year_start", "expected", "notes"), [
+    # start stamps running to 00:00 of the next year: its one record left out
+    ("2021-01-01 00:00", "2022-01-01 00:00", 30, "01-01",
+     ("2021-01-01 00:00", "2021-12-31 23:30"), 1),
+    # a day missing at each end of a two-year hourly record: both added
+    ("2021-01-02 00:00", "2022-12-30 23:00", 60, "01-01",
+     ("2021-01-01 00:00", "2022-12-31 23:00"), 2),
+    # a July-June budget year: the edges follow year_start
+    ("2021-06-30 23:30", "2022-06-30 23:00", 30, "07-01",
+     ("2021-07-01 00:00", "2022-06-30 23:30"), 2),
+    # partial years (more than a day absent) and whole ones are left as they are
+    ("2021-03-01 00:00", "2021-12-31 00:00", 30, "01-01", None, 0),
+    ("2021-01-01 00:00", "2021-12-31 23:30", 30, "01-01", None, 0),
+    ("2021-01-01 00:00", "2021-12-30 23:00", 30, "01-01", None, 0),
+    # two fragments of less than a day each: nothing left to keep, nothing changed
+    ("2020-12-31 12:00", "2021-01-01 11:00", 30, "01-01", None, 0),
+])
+def test_budget_year_edges_leave_out_fragments_and_add_edges(first, last, minutes, year_start,
+                                                             expected, notes):
+    """Fragments under a day are left out, edges of at most a day added; else unchanged."""
+    starts = pd.date_range(first, last, freq=f"{minutes}min")
+    index, found = budget_year_edges(starts, minutes, year_start)
+    assert len(found) == notes
+    if expected is None:
+        pd.testing.assert_index_equal(index, starts)
+    else:
+        assert (index[0], index[-1]) == tuple(pd.Timestamp(t) for t in expected)
+        assert index.freq == pd.Timedelta(minutes=minutes)
 
 
 def test_budget_years_calendar_default():
