@@ -27,8 +27,11 @@ class Config:
     Attributes
     ----------
     seed : int
-        Seed of every random draw (bootstrap, Monte Carlo); part of the result's
-        identity.
+        Seed of the random draws of the u* bootstrap and the Monte Carlo of the
+        random error; part of the result's identity. The artificial gaps that score
+        the gap filling are placed by a seed drawn from the measured NEE itself
+        (:func:`fluxpart.uncertainty.artificial_gap_seed`, since 0.13.0), so the
+        seed cannot choose the gap-filling part of the stated interval.
     night_rg_threshold : float
         Records with global radiation below this are night [W m-2]. 10 W m-2 is
         common practice (m) (Reichstein et al. 2005 use 10 W m-2 (m)); where Rg is

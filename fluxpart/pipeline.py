@@ -879,7 +879,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         nee_measured, noise, is_night,
         lambda values, hidden: _fill_nee(values, conditions.mask(hidden), index, is_night,
                                          config, gaps=measured & np.isnan(values))["value"],
-        seed=config.seed, records_per_day=24 * 60 // interval,
+        seed=uncertainty.artificial_gap_seed(nee_measured), records_per_day=24 * 60 // interval,
         conditions_missing=conditions.isna().to_numpy())
     gapfill_model = uncertainty.gapfill_error_model(gap_errors)
     runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,

@@ -298,6 +298,9 @@ RANDOM_ERROR_MODEL_COLUMNS: dict[str, tuple[str, str]] = {
     "block_covariance_long": ("umol2 m-4 s-2", "gap filling: error covariance of two filled "
                               "records of one class in different 7-day blocks of one gap "
                               "longer than one day"),
+    "size_reference_long": (FLUX, "gap filling: the class's mean |NEE| over its measured records; "
+                            "in a gap longer than one day a fill counts max(|fill| / this, 1) "
+                            "in the shared error (CO2)"),
     "neighbour_covariance": ("umol2 m-4 s-2", "gap filling: error covariance of two filled "
                              "records of one class (night or day) in different gaps at most 7 days apart"),
     "gaps": ("1", "artificial gaps scored"),

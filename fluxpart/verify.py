@@ -88,7 +88,10 @@ _MAX_FIELDS_LISTED = 40
 _ENVIRONMENT_KEYS = ("versions", "code", "platform")
 _PATH_FREE = ("format", "caution", "site", "config", "seed", "warnings")
 #: Manifest fields that hold only file names (not content): a difference is a note.
-_NAME_FIELDS = ("provenance.reader.files",)
+#: Manifest fields that change with the input files' names alone. Each input file's
+#: content is checked by its SHA-256 before the rerun, so a difference here is a renamed
+#: copy (the joint SHA-256 of several files covers their names too).
+_NAME_FIELDS = ("provenance.reader.files", "provenance.input.sha256")
 
 
 @dataclass(frozen=True)
@@ -107,7 +110,9 @@ class Difference:
         (a file the manifest does not list), ``"seal"`` (the manifest was edited),
         ``"table"`` (a table only on one side), ``"columns"``, ``"rows"``,
         ``"index"``, ``"dtype"``, ``"more"`` (further differing columns, listed
-        in `stored`) or ``"manifest"`` (a manifest field differs; `column` names it).
+        in `stored`), ``"manifest"`` (a manifest field differs; `column` names it)
+        or ``"metadata"`` (a table's column type, unit or description, or a key of
+        its table metadata, differs; `column` names it).
     column : str or None
         Column or manifest field at fault.
     row : str or None
@@ -158,6 +163,9 @@ class Difference:
                     f"recomputed {self.recomputed}")
         if self.kind == "table":
             return f"{self.table}: stored {self.stored}, recomputed {self.recomputed}"
+        if self.kind == "metadata":
+            return (f"{self.table}: metadata {self.column!r} differs (values equal): stored "
+                    f"{self.stored!r}, recomputed {self.recomputed!r}")
         where = f" column {self.column!r}" if self.column else ""
         at = f" at {self.row}" if self.row else ""
         return (f"{self.table}:{where}{at} {self.kind} differ: stored {self.stored}, "
@@ -455,6 +463,69 @@ def _compare_manifests(stored: dict, recomputed: dict) -> list:
     return out
 
 
+def _flatten(value, prefix: str = "") -> dict:
+    """Nested JSON objects as ``{"a.b.c": leaf}``."""
+    if isinstance(value, dict):
+        out = {}
+        for key, inner in value.items():
+            out.update(_flatten(inner, f"{prefix}{key}."))
+        return out
+    return {prefix[:-1]: value}
+
+
+def _schema_record(path: Path) -> dict:
+    """A Parquet file's metadata as flat ``{key: text}``: every field's type and
+    key-value metadata (unit, description) and the table's own key-value metadata
+    (the fluxpart JSON flattened, e.g. ``site.utc_offset``)."""
+    import pyarrow.parquet as pq
+
+    schema = pq.read_schema(path)
+    out = {}
+    for item in schema:
+        out[f"{item.name} type"] = str(item.type)
+        for key, value in (item.metadata or {}).items():
+            out[f"{item.name} {key.decode(errors='replace')}"] = value.decode(errors="replace")
+    for key, value in (schema.metadata or {}).items():
+        text = value.decode(errors="replace")
+        try:
+            parsed = json.loads(text)
+        except ValueError:
+            parsed = None
+        if isinstance(parsed, dict):
+            out.update({name: leaf if isinstance(leaf, str) else json.dumps(leaf, sort_keys=True)
+                        for name, leaf in _flatten(parsed, f"{key.decode()}.").items()})
+        else:
+            out[key.decode(errors="replace")] = text
+    return out
+
+
+def metadata_differences(stored: Path, recomputed: Path) -> list[tuple[str, str, str]]:
+    """What differs between two Parquet files' schemas and metadata.
+
+    Parameters
+    ----------
+    stored, recomputed : path
+        The two Parquet files.
+
+    Returns
+    -------
+    list of (key, stored, recomputed)
+        One entry per differing item, sorted by key: a column's type, unit or
+        description, or a key of the table metadata (e.g.
+        ``fluxpart.site.utc_offset``); ``"absent"`` where one side lacks it. Empty
+        when the two files describe their columns and table alike.
+
+    Notes
+    -----
+    Equal values with unequal metadata are a different result: a unit or the
+    site's UTC offset changed in a table's metadata changes what its numbers mean
+    to every reader (``fluxpart.load`` hands them to the modeller).
+    """
+    left, right = _schema_record(Path(stored)), _schema_record(Path(recomputed))
+    return [(key, left.get(key, "absent"), right.get(key, "absent"))
+            for key in sorted(set(left) | set(right)) if left.get(key) != right.get(key)]
+
+
 def _environment(manifest: dict) -> tuple[list[str], bool]:
     """Version, code and platform differences; whether the code fingerprint changed.
 
@@ -610,14 +681,42 @@ def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: l
                          "--config")
 
 
-def _input_files(directory: Path, recorded: dict, given, config_path: Path | None):
+def _in_recorded_order(wanted: list, given: list, config_sha=None) -> list:
+    """The files given with ``--input`` put in the recorded order by their SHA-256.
+
+    A file whose content is the recorded one is matched whatever its name or its
+    place among the ``--input`` options; files that match nothing keep their places
+    (and are reported as another input). A file that is the recorded site config
+    is a usage error: the two options were swapped.
+    """
+    digests = [file_sha256(path) for path in given]
+    for path, digest in zip(given, digests, strict=True):
+        if config_sha and digest == config_sha and all(digest != entry.get("sha256")
+                                                       for entry in wanted):
+            raise InputFileError(f"verify: {str(path)!r} given with --input is the recorded "
+                                 "site config, not an input file; give the site config with "
+                                 "--config and the input file(s) with --input")
+    unused = list(range(len(given)))
+    order = [None] * len(wanted)
+    for number, entry in enumerate(wanted):
+        match = next((i for i in unused if digests[i] == entry.get("sha256")), None)
+        if match is not None:
+            order[number] = given[match]
+            unused.remove(match)
+    leftover = iter(given[i] for i in unused)
+    return [path if path is not None else next(leftover) for path in order]
+
+
+def _input_files(directory: Path, recorded: dict, given, config_path: Path | None,
+                 config_sha=None):
     """Return (input path or list of paths, difference or None).
 
     One file: the file given with ``--input``, else the one at the recorded path
     (relative to the result folder), else the one the site config names; it must
     have the recorded SHA-256. Several files (``recorded["files"]``): each is
-    looked for likewise, ``--input`` given once per file; each must have its
-    recorded SHA-256.
+    looked for likewise, ``--input`` given once per file in any order (matched by
+    SHA-256); each must have its recorded SHA-256. A file given with ``--input``
+    that is the recorded site config (`config_sha`) is refused as swapped options.
     """
     parts = recorded.get("files") if isinstance(recorded.get("files"), list) else None
     wanted = parts if parts else [recorded]
@@ -637,6 +736,8 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
             beside_config = list(read_site_config(config_path).input_paths)
         except FluxpartError:
             beside_config = []
+    if given:
+        given = _in_recorded_order(wanted, [Path(p) for p in given], config_sha)
     found = []
     for number, entry in enumerate(wanted):
         sha = entry.get("sha256")
@@ -679,11 +780,21 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
         raise InputFileError("verify: the manifest records neither an input file and site "
                              "config (fluxpart run) nor a demo seed (fluxpart demo), so the "
                              "result cannot be recomputed")
+    recorded_input = provenance["input"]
+    input_digests = {entry.get("sha256") for entry in (
+        recorded_input.get("files") if isinstance(recorded_input.get("files"), list)
+        else [recorded_input]) if isinstance(entry, dict)}
+    if config_path is not None and Path(config_path).is_file() \
+            and file_sha256(Path(config_path)) in input_digests:
+        raise InputFileError(f"verify: {str(config_path)!r} given with --config is a recorded "
+                             "input file, not the site config; give the site config with "
+                             "--config and the input file(s) with --input")
     site_config, locating, changed = _site_config(directory, provenance["site_config"],
                                                   config_path, scratch, notes)
     if changed is not None:
         return "run", None, [changed]
-    data_path, changed = _input_files(directory, provenance["input"], input_path, locating)
+    data_path, changed = _input_files(directory, recorded_input, input_path, locating,
+                                      provenance["site_config"].get("sha256"))
     if changed is not None:
         return "run", None, [changed]
     if provenance.get("settings") == "site config":
@@ -833,8 +944,16 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
             differences += [d for d in found if d.kind != "rounding"]
             if not found and (new_manifest["tables"][name]["sha256"]
                               != manifest["tables"][name].get("sha256")):
-                notes.append(f"{name}: values bit-identical, file bytes differ from the "
-                             "recorded ones (library versions?)")
+                described = metadata_differences(directory / manifest["tables"][name]["file"],
+                                                 again / new_manifest["tables"][name]["file"])
+                differences += [Difference(name, "metadata", column=key, stored=old,
+                                           recomputed=new) for key, old, new in described]
+                if not described:
+                    cause = ("library versions differ" if environment else
+                             "the recorded library versions and platform match; a compression "
+                             "library outside the record may differ")
+                    notes.append(f"{name}: values and metadata bit-identical, file bytes differ "
+                                 f"from the recorded ones ({cause})")
     return VerifyReport(directory=directory, identity=identity, source=source, tables=tuple(names),
                         differences=tuple(differences), rounding=tuple(rounding),
                         environment=tuple(environment), code_changed=code_changed,

@@ -283,6 +283,13 @@ def test_a_different_seed_changes_only_the_random_draw_columns(demo_run):
     for column in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime",
                    "ustar_threshold", "net_uptake_t_co2_per_ha"):
         assert column not in changed
+    # the artificial gaps are placed by a seed drawn from the data (since 0.13.0): the
+    # gap-filling part and its error model cannot be chosen by the seed
+    for column in ("nee_uncertainty_gapfill", "nee_uncertainty_gapfill_bias",
+                   "nee_uncertainty_gapfill_bias_se", "nee_uncertainty_random_analytic"):
+        assert column not in changed
+    pd.testing.assert_frame_equal(other.parameters["gapfill_error_model"],
+                                  result.parameters["gapfill_error_model"])
 
 
 def test_a_failing_ustar_scenario_is_left_out_with_a_warning(monkeypatch):

@@ -762,6 +762,25 @@ def test_long_gaps_get_their_own_shared_variance_by_week_blocks():
     assert alone["correlated_variance_long"] == alone["correlated_variance"]
 
 
+def test_artificial_gap_seed_is_fixed_by_the_measured_values_and_their_gaps():
+    """The placement seed is a function of the series alone: equal series give equal
+    seeds (a copy, another NaN object), a changed value or a moved gap another one, and
+    it is a 64-bit unsigned integer (SHA-256, FIPS 180-4, via Python's hashlib)."""
+    from fluxpart.uncertainty import artificial_gap_seed
+
+    rng = np.random.default_rng(3)
+    nee = rng.normal(0.0, 3.0, 1000)
+    nee[100:150] = np.nan
+    seed = artificial_gap_seed(nee)
+    assert seed == artificial_gap_seed(nee.copy())
+    assert 0 <= seed < 2**64
+    changed = nee.copy()
+    changed[500] += 1e-9
+    moved = nee.copy()
+    moved[100], moved[150] = moved[150], np.nan
+    assert len({seed, artificial_gap_seed(changed), artificial_gap_seed(moved)}) == 3
+
+
 def test_blocks_of_one_long_gap_share_a_covariance_recovered_by_moments():
     """Known truth (invented): the 7-day blocks of one long artificial gap share a gap
     level of variance d per record pair on top of their own b_long: S_i = sqrt(d) m_i Z_g

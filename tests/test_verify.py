@@ -244,6 +244,30 @@ def test_altered_parquet_value_is_located(copy, capsys):
     assert "timeseries" not in out                    # the other tables still match
 
 
+def test_resealed_unit_or_site_metadata_edit_is_not_reproduced(copy, capsys):
+    """Equal values under an edited unit or site UTC offset are another result: every
+    reader (fluxpart.load, a modeller's Parquet reader) takes the unit and the site from
+    the metadata. With the table hash and the seal forged, the rerun still names both
+    edits (table, metadata key, both values) and exits 1."""
+    path = copy / "out" / "daily.parquet"
+    arrow = pq.read_table(path)
+    fields = [item.with_metadata({**item.metadata, b"unit": b"kg m-2"})
+              if item.name == "nee" else item for item in arrow.schema]
+    table_meta = json.loads(arrow.schema.metadata[b"fluxpart"])
+    table_meta["site"]["utc_offset"] = table_meta["site"]["utc_offset"] + 1.0
+    schema = pa.schema(fields, metadata={b"fluxpart": json.dumps(table_meta).encode()})
+    pq.write_table(arrow.cast(schema), path)
+    _edit_manifest(copy / "out", lambda m: m["tables"]["daily"].update(sha256=file_sha256(path)),
+                   reseal=True)
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert out.startswith("NOT reproduced")
+    assert "daily: metadata 'nee unit' differs (values equal): stored 'kg m-2', recomputed " \
+           "'g m-2'" in out
+    assert "daily: metadata 'fluxpart.site.utc_offset' differs" in out
+    assert "annual" not in out.split("result:")[0]          # the other tables still match
+
+
 def test_last_bit_change_is_rounding_and_exact_refuses_it(copy, capsys):
     """A one-ulp change in a consistent folder (as another CPU gives) is rounding: exit 0.
 
@@ -328,6 +352,20 @@ def test_several_input_files_are_found_or_given_once_each(tmp_path, capsys):
     assert "once for each" in capsys.readouterr().err
     assert main(["verify", str(alone), "--input", str(moved / "part1.csv"),
                  "--input", str(moved / "part2.csv")]) == 0
+    # the right files in another order, or renamed, are matched by their SHA-256
+    renamed = tmp_path / "renamed"
+    renamed.mkdir()
+    shutil.copy(moved / "part1.csv", renamed / "a.csv")
+    shutil.copy(moved / "part2.csv", renamed / "b.csv")
+    capsys.readouterr()
+    assert main(["verify", str(alone), "--input", str(renamed / "b.csv"),
+                 "--input", str(renamed / "a.csv")]) == 0, capsys.readouterr().out
+    # the site config given as an input is a usage error, not a failed verification
+    assert main(["verify", str(alone), "--input", str(moved / "site.toml"),
+                 "--input", str(moved / "part2.csv")]) == 2
+    assert "is the recorded site config" in capsys.readouterr().err
+    assert main(["verify", str(alone), "--config", str(moved / "part1.csv")]) == 2
+    assert "is a recorded input file" in capsys.readouterr().err
 
 
 def test_input_files_of_a_glob_are_given_or_found_without_the_config(tmp_path, capsys):
