@@ -23,9 +23,10 @@ Leftover staging and retired folders are removed by the next writer.
 
 Reading (:func:`read_folder`, used by ``fluxpart.load``, ``report`` and
 ``verify``): the manifest's seal must match its content, every table must have
-its recorded SHA-256, and the folder must hold nothing else than the manifest,
-its tables and the two unhashed entries it names (the run log and the
-``report/`` folder). Otherwise the folder is refused, naming the file.
+its recorded SHA-256, rows and columns, and the folder must hold nothing else
+than the manifest, its tables and the two unhashed entries it names (the run log
+and the ``report/`` folder). Otherwise the folder is refused, naming the file; a
+file that cannot be read at all (no permission) is an error naming it.
 """
 
 from __future__ import annotations
@@ -60,7 +61,14 @@ from .manifest import (
     read_manifest,
     seal_intact,
 )
-from .store import atomic_write_bytes, file_sha256, read_table, write_table
+from .store import (
+    atomic_write_bytes,
+    file_sha256,
+    read_table,
+    table_shape,
+    unreadable,
+    write_table,
+)
 
 __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_leftovers",
            "folder_lock", "lock_file", "read_folder", "recover_missing", "write_folder"]
@@ -510,8 +518,9 @@ class FolderProblem:
         The file (or folder) at fault, relative to the result folder.
     kind : str
         ``"seal"`` (manifest edited), ``"format"``, ``"missing"``, ``"hash"``
-        (bytes changed), ``"extra"`` (not listed in the manifest) or ``"entry"``
-        (a malformed table entry).
+        (bytes changed), ``"content"`` (rows or columns other than the manifest
+        records), ``"extra"`` (not listed in the manifest) or ``"entry"`` (a
+        malformed table entry).
     detail : str
         What was found.
     """
@@ -529,8 +538,15 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
     """Compare a result folder with its manifest; return every problem found.
 
     Checks the manifest's seal and format, that each listed table exists with
-    its recorded SHA-256, and that nothing else is in the folder than the
-    manifest, its tables, the run log and the ``report/`` folder.
+    its recorded SHA-256 and, read from its footer, the recorded rows and columns,
+    and that nothing else is in the folder than the manifest, its tables, the run
+    log and the ``report/`` folder.
+
+    Raises
+    ------
+    InputFileError
+        If the folder or a listed file cannot be read (no permission, an I/O
+        error): a file that cannot be read is bad input, not a changed result.
     """
     directory = Path(directory)
     problems = []
@@ -572,7 +588,13 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
             problems.append(FolderProblem(file, "hash", f"has SHA-256 {actual}, not the "
                                           f"{entry.get('sha256')} recorded in the manifest: "
                                           "the file changed after it was written"))
-    for path in sorted(directory.iterdir()):
+            continue
+        problems += _shape_problems(path, file, entry)
+    try:
+        entries = sorted(directory.iterdir())
+    except OSError as error:
+        raise unreadable(directory, error) from None
+    for path in entries:
         if path.name in allowed_files and path.is_file() and not path.is_symlink():
             continue
         if path.name in allowed_dirs and path.is_dir() and not path.is_symlink():
@@ -581,9 +603,51 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
             problems.append(FolderProblem(path.name, "extra", "has the name of a listed entry "
                                           "but is not a plain file or folder"))
             continue
+        if path.name.startswith(f".{REPORT_FOLDER}.") and path.is_dir():
+            problems.append(FolderProblem(path.name + "/", "extra",
+                                          "is what an interrupted `fluxpart report` left; "
+                                          "delete it or draw the report again (which removes "
+                                          "it)"))
+            continue
         problems.append(FolderProblem(path.name + ("/" if path.is_dir() else ""), "extra",
                                       "is not listed in the manifest (the folder must hold "
                                       "exactly the files its manifest lists)"))
+    return problems
+
+
+def _shape_problems(path: Path, file: str, entry: dict) -> list[FolderProblem]:
+    """The manifest's recorded rows and columns of a table against its file's footer.
+
+    A table whose SHA-256 was forged along with the manifest's seal (both are public
+    functions) passes the hash check; a row deleted or a column dropped is then still
+    named here, without a rerun. Entries without ``rows`` or ``columns`` (written by
+    hand) are not checked.
+    """
+    rows, columns = entry.get("rows"), entry.get("columns")
+    if not isinstance(rows, int) and not isinstance(columns, list):
+        return []
+    try:
+        found_rows, found_columns = table_shape(path)
+    except InputFileError:
+        return []       # not Parquet at all: reading the table names it (read_table)
+    problems = []
+    if isinstance(rows, int) and rows != found_rows:
+        problems.append(FolderProblem(file, "content", f"has {found_rows} rows, not the "
+                                      f"{rows} recorded in the manifest"))
+    if isinstance(columns, list):
+        # the first recorded column is the index; an unnamed default one is not stored
+        expected = [str(c) for number, c in enumerate(columns)
+                    if not (number == 0 and c == "index" and c not in found_columns)]
+        missing = [c for c in expected if c not in found_columns]
+        extra = [c for c in found_columns if c not in expected]
+        if missing:
+            problems.append(FolderProblem(file, "content", f"lacks column(s) "
+                                          f"{', '.join(map(repr, missing))} that the manifest "
+                                          "records"))
+        if extra:
+            problems.append(FolderProblem(file, "content", f"has column(s) "
+                                          f"{', '.join(map(repr, extra))} that the manifest "
+                                          "does not record"))
     return problems
 
 
