@@ -502,6 +502,15 @@ def main(argv=None) -> int:
             return args.handler(args)
     except FluxpartError as error:
         print(f"error: {error}", file=sys.stderr)
+        if argv is None and getattr(error, "end_process", False):
+            # a NetCDF write that failed part-way (full disk, ulimit -f) leaves the HDF5
+            # library with objects it cannot close; its clean-up at the interpreter's exit
+            # then crashed the process (SIGSEGV, exit 139) after the error line. Only on this
+            # path, and only as the `fluxpart` process itself (not main() called from Python),
+            # the process ends here: the output is flushed, nothing else is left to do.
+            sys.stdout.flush()
+            sys.stderr.flush()
+            os._exit(2)
         return 2
     except KeyboardInterrupt:
         # a result folder is written whole or not at all (fluxpart.resultdir), so an
