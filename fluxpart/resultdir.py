@@ -71,7 +71,8 @@ from .store import (
 )
 
 __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_leftovers",
-           "folder_lock", "lock_file", "read_folder", "recover_missing", "write_folder"]
+           "folder_lock", "lock_file", "make_staging", "read_folder", "recover_missing",
+           "swapped_in", "write_folder"]
 
 #: Seconds a writer waits for another writer of the same folder before giving up.
 DEFAULT_LOCK_TIMEOUT = 600.0
@@ -123,7 +124,8 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
         Called with one line of text when the lock is busy and we wait
         (default: printed to stderr).
     remove : bool, optional
-        Delete the lock file when the block ends without an error (default False).
+        Delete the lock file when the block ends, with or without an error
+        (default False).
 
     Raises
     ------
@@ -174,10 +176,12 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
                           f"{error.strerror or error}; choose a writable output folder") from None
     try:
         yield path
+    finally:
+        # also after an error or an interrupt (Ctrl-C, SIGTERM): the block's work is whole
+        # or undone by then, and the file is deleted while the lock is still held
         if remove and locked and _names_locked_file(path, locked[-1]):
             with _suppress_os_error():
                 path.unlink()
-    finally:
         lock.release()
 
 
@@ -326,6 +330,65 @@ def _swap_in(staging: Path, directory: Path) -> None:
     shutil.rmtree(retired, ignore_errors=True)
 
 
+def make_staging(directory) -> Path:
+    """Make a fresh, empty staging folder ``.NAME.staging-*`` beside `directory`.
+
+    Parameters
+    ----------
+    directory : path-like
+        The folder to be replaced (need not exist; its parent must).
+
+    Returns
+    -------
+    pathlib.Path
+        The staging folder (mode 755, like the folders it replaces).
+
+    Raises
+    ------
+    OSError
+        If nothing can be made beside `directory` (the caller names the folder).
+    """
+    directory = _absolute(directory)
+    staging = Path(tempfile.mkdtemp(prefix=f".{directory.name}.{_STAGING}",
+                                    dir=directory.parent))
+    try:
+        os.chmod(staging, _DIR_MODE)
+    except OSError:
+        shutil.rmtree(staging, ignore_errors=True)
+        raise
+    return staging
+
+
+@contextmanager
+def swapped_in(staging: Path, directory):
+    """Fill `staging` in the block; leaving it without an error replaces `directory` whole.
+
+    The files written into `staging` are flushed, then `staging` takes the place of
+    `directory` in one step (:func:`_swap_in`). An error or an interrupt in the block,
+    or in the swap, removes `staging` and leaves `directory` as it was. Hold the
+    folder's lock (:func:`folder_lock`) around it where other writers may run.
+
+    Parameters
+    ----------
+    staging : pathlib.Path
+        From :func:`make_staging` of the same `directory`.
+    directory : path-like
+        The folder replaced.
+
+    Yields
+    ------
+    pathlib.Path
+        `staging`.
+    """
+    try:
+        yield staging
+        _fsync_dir(staging)
+        _swap_in(staging, _absolute(directory))
+    except BaseException:
+        shutil.rmtree(staging, ignore_errors=True)
+        raise
+
+
 def recorded_site_name(directory) -> str | None:
     """The site name in the manifest of the result folder `directory`, or None.
 
@@ -449,8 +512,6 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
         result folder of another site, not writable, or locked by another writer for longer than `lock_timeout`.
         Nothing is changed in that case.
     """
-    from .schema import units_for_table
-
     directory = _absolute(directory)
     site_name = site.get("name") if isinstance(site, dict) else None
     reason = _is_replaceable(directory, site_name)
@@ -468,42 +529,44 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
         if reason:
             raise OutputError(f"output folder {str(directory)!r} {reason}; choose another --out")
         try:
-            staging = Path(tempfile.mkdtemp(prefix=f".{directory.name}.{_STAGING}",
-                                            dir=directory.parent))
-            os.chmod(staging, _DIR_MODE)
+            staging = make_staging(directory)
         except OSError as error:
             raise OutputError(f"cannot write beside the output folder {str(directory)!r}: "
                               f"{error.strerror or error}") from None
         try:
-            entries = {}
-            for name, table in tables.items():
-                frame = table if table.index.name is not None else table.rename_axis("row")
-                columns = [frame.index.name or "index", *frame.columns]
-                file = f"{name}.parquet"
-                sha = write_table(frame, staging / file,
-                                  units_for_table(_unit_table(name), columns), name)
-                entries[name] = {"file": file, "sha256": sha, "rows": len(frame),
-                                 "columns": [str(c) for c in columns]}
-            manifest = build_manifest(
-                entries, site=site, config=config, seed=seed, provenance=provenance,
-                warnings=warnings, versions=library_versions(), code=code_fingerprint(),
-                platform_facts=platform_record(), directory=directory)
-            log = run_log_record(directory, provenance)
-            atomic_write_bytes(staging / RUN_LOG,
-                               (json.dumps(log, indent=2, ensure_ascii=False) + "\n").encode())
-            atomic_write_bytes(staging / MANIFEST_FILE, manifest_bytes(manifest))
-            _fsync_dir(staging)
-            _swap_in(staging, directory)
+            with swapped_in(staging, directory):
+                _write_tables(staging, directory, tables, site=site, config=config, seed=seed,
+                              provenance=provenance, warnings=warnings)
         except OSError as error:
-            shutil.rmtree(staging, ignore_errors=True)
             where = f" ({error.filename})" if error.filename else ""
             raise OutputError(f"writing the result folder {str(directory)!r} failed: "
                               f"{error.strerror or error}{where}; the earlier result, if any, "
                               "is unchanged") from None
-        except BaseException:
-            shutil.rmtree(staging, ignore_errors=True)
-            raise
     return directory
+
+
+def _write_tables(staging: Path, directory: Path, tables: dict, *, site, config, seed,
+                  provenance, warnings) -> None:
+    """Write the tables, the run log and, last, the manifest into `staging`."""
+    from .schema import units_for_table
+
+    entries = {}
+    for name, table in tables.items():
+        frame = table if table.index.name is not None else table.rename_axis("row")
+        columns = [frame.index.name or "index", *frame.columns]
+        file = f"{name}.parquet"
+        sha = write_table(frame, staging / file, units_for_table(_unit_table(name), columns),
+                          name)
+        entries[name] = {"file": file, "sha256": sha, "rows": len(frame),
+                         "columns": [str(c) for c in columns]}
+    manifest = build_manifest(
+        entries, site=site, config=config, seed=seed, provenance=provenance,
+        warnings=warnings, versions=library_versions(), code=code_fingerprint(),
+        platform_facts=platform_record(), directory=directory)
+    log = run_log_record(directory, provenance)
+    atomic_write_bytes(staging / RUN_LOG,
+                       (json.dumps(log, indent=2, ensure_ascii=False) + "\n").encode())
+    atomic_write_bytes(staging / MANIFEST_FILE, manifest_bytes(manifest))
 
 
 # --------------------------------------------------------------------------- reading

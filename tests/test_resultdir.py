@@ -502,3 +502,14 @@ def test_a_forged_table_is_named_by_every_reader(short_result, tmp_path, capsys,
         assert main(_commands(folder, intact, tmp_path)[command]) == 2
         _one_error_line(capsys, "annual.parquet", said)
     assert resultdir.check_folder(intact, read_folder(intact)[0]) == []
+
+
+def test_failed_or_interrupted_block_leaves_no_lock_file(tmp_path):
+    """The lock file goes when the block ends with an error or Ctrl-C too (review: a report
+    stopped with Ctrl-C left `.DIR.lock`)."""
+    out = tmp_path / "out"
+    for error in (OutputError("disk full"), KeyboardInterrupt()):
+        with pytest.raises(type(error)), folder_lock(out, remove=True):
+            assert resultdir.lock_file(out).exists()
+            raise error
+        assert not resultdir.lock_file(out).exists()
