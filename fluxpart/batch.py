@@ -42,6 +42,7 @@ import re
 import shutil
 import sys
 import tempfile
+import time
 import traceback
 import uuid
 from collections import Counter
@@ -760,24 +761,26 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     cluster of a process and keeps that moment's environment variables for the
     workers of later clusters.
     """
+    started = time.time()
     network = read_sites_file(sites_file)
     out = (Path(out) if out is not None else network.out).resolve()
     _check_out(out)
+    _make_writable_out(out)          # before the cluster starts and any site is computed
+    _sweep_leftovers(out, started)
     client, cluster = _client(scheduler, workers)
     try:
-        try:
-            out.mkdir(parents=True, exist_ok=True)
-        except OSError as error:      # a file on the way, a read-only place
-            raise OutputError(f"batch output folder {str(out)!r} cannot be made "
-                              f"({error.strerror or error}); choose another --out or "
-                              "[batch] out") from None
         outcomes = _run_tasks(client, network.sites, out, force, progress)
     finally:
         client.close()
         if cluster is not None:
             cluster.close()
-    failures = _write_failures(outcomes, out)
-    table = _write_network(outcomes, out)
+    try:
+        failures = _write_failures(outcomes, out)
+        table = _write_network(outcomes, out)
+    except OSError as error:          # a full disk after the sites were written
+        raise OutputError(f"writing the network tables in {str(out)!r} failed "
+                          f"({error.strerror or error}); the site folders written are whole, "
+                          "and a rerun skips them and rewrites the network tables") from None
     return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures,
                        warnings=tuple(same_input_sites(outcomes)))
 
@@ -831,6 +834,66 @@ def _check_out(out: Path) -> None:
             raise OutputError(f"batch output folder {str(out)!r} {where} the result folder "
                               f"{str(folder)!r}, which must hold only the files its manifest "
                               "lists; choose another --out or [batch] out outside it")
+
+
+def _make_writable_out(out: Path) -> None:
+    """Make the batch output folder and check that files can be written in it.
+
+    Raises
+    ------
+    OutputError
+        If `out` cannot be made or written in (a read-only place, no permission, an
+        immutable folder): said before any site is computed, not after all of them.
+    """
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+        with tempfile.TemporaryFile(dir=out):
+            pass
+    except OSError as error:          # a file on the way, a read-only place
+        raise OutputError(f"batch output folder {str(out)!r} cannot be written "
+                          f"({error.strerror or error}); choose another --out or "
+                          "[batch] out") from None
+
+
+#: Staging folders of the network datasets (``.network_annual.xxxxxxxx`` and the old copy
+#: ``.network_annual.old.xxxxxxxx`` of :func:`_replace_folder`) and temporary files of
+#: ``failures.parquet``, as a batch killed while writing them leaves them.
+_LEFTOVER = re.compile(
+    rf"^\.(?:(?:{'|'.join(map(re.escape, NETWORK_DATASETS.values()))})\.(?:old\.)?"
+    rf"[a-z0-9_]{{8}}|{re.escape(FAILURES_FILE)}\.[a-z0-9_]{{8}}\.tmp)$")
+
+
+def _sweep_leftovers(out: Path, started: float) -> list[str]:
+    """Remove what a killed batch left while writing its network tables in `out`.
+
+    Only entries of `out` itself whose names match :data:`_LEFTOVER` and that are
+    older than this batch (modified before `started`, seconds since the epoch) go:
+    a batch writing into the same folder at this moment is left alone.
+
+    Returns
+    -------
+    list of str
+        The names removed.
+    """
+    removed = []
+    try:
+        entries = list(out.iterdir())
+    except OSError:
+        return removed
+    for entry in entries:
+        if not _LEFTOVER.match(entry.name) or entry.is_symlink():
+            continue
+        try:
+            if entry.stat().st_mtime >= started:
+                continue
+            if entry.is_dir():
+                shutil.rmtree(entry)
+            else:
+                entry.unlink()
+        except OSError:
+            continue
+        removed.append(entry.name)
+    return removed
 
 
 def _run_tasks(client, sites, out: Path, force: bool, progress) -> list[SiteOutcome]:

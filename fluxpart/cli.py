@@ -416,6 +416,22 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
+#: What a command stopped by Ctrl-C or SIGTERM leaves behind, by command ('' for the rest).
+_AFTER_STOP = {
+    "": "an output folder holds its earlier content or a complete new result, never a mix",
+    "batch": "each site's result folder holds its earlier content or a complete new result, "
+             "but the network tables and failures.parquet may still describe an earlier run "
+             "or be only partly rewritten: run the batch again, which skips the sites up to "
+             "date and rewrites them whole",
+    "export": "the NetCDF file is the earlier one (or absent), never half-written",
+    "report": "the report folder holds the earlier report (or none) or the complete new one, "
+              "never a mix",
+    "verify": "nothing was written",
+    "diff": "nothing was written",
+    "check": "nothing was written",
+}
+
+
 class _Terminated(BaseException):
     """SIGTERM (``kill``, a batch scheduler's time limit) raised in the running command.
 
@@ -515,12 +531,12 @@ def main(argv=None) -> int:
     except KeyboardInterrupt:
         # a result folder is written whole or not at all (fluxpart.resultdir), so an
         # interrupt leaves it as it was, or complete if it came after the swap
-        print("error: interrupted (Ctrl-C); an output folder holds its earlier content or "
-              "a complete new result, never a mix", file=sys.stderr)
+        print(f"error: interrupted (Ctrl-C); {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}",
+              file=sys.stderr)
         return 130
     except _Terminated:
-        print("error: terminated (SIGTERM); an output folder holds its earlier content or a "
-              "complete new result, never a mix", file=sys.stderr)
+        print(f"error: terminated (SIGTERM); {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}",
+              file=sys.stderr)
         return 128 + signal.SIGTERM
     except BrokenPipeError:          # output piped into e.g. `head`, which closed early
         sys.stderr.close()
