@@ -41,7 +41,9 @@ version 1.10. https://cfconventions.org (sections 2.5.1 missing data, 3.3 standa
 from __future__ import annotations
 
 import os
+import re
 import tempfile
+import time
 from pathlib import Path
 
 import numpy as np
@@ -343,10 +345,12 @@ def write_netcdf(result, path) -> Path:
 
         directory, result = Path(result), load(result)
     _check_target(path, result.provenance, directory)
+    started = time.time()
     dataset = to_xarray(result)
     engine = _engine()
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
+        _sweep_temporary(path, started)
         handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp",
                                              dir=path.parent)
     except OSError as error:        # a read-only medium, no permission, a file in the path
@@ -371,6 +375,23 @@ def write_netcdf(result, path) -> Path:
         Path(temporary).unlink(missing_ok=True)
         raise
     return path
+
+
+def _sweep_temporary(path: Path, started: float) -> None:
+    """Remove the temporary files of exports to `path` killed before `started` [s since epoch].
+
+    Only ``.NAME.xxxxxxxx.tmp`` beside `path` (the names :func:`write_netcdf` gives them)
+    last modified before this export began; one being written now is left alone.
+    """
+    pattern = re.compile(rf"^\.{re.escape(path.name)}\.[a-z0-9_]{{8}}\.tmp$")
+    for entry in path.parent.iterdir():
+        if not pattern.match(entry.name) or entry.is_symlink():
+            continue
+        try:
+            if entry.is_file() and entry.stat().st_mtime < started:
+                entry.unlink()
+        except OSError:
+            continue
 
 
 def _check_target(path: Path, provenance, directory) -> None:

@@ -237,3 +237,20 @@ def test_export_full_disk_ends_the_process_with_status_2(written_demo, tmp_path)
     assert done.returncode == 2, done.stderr[-2000:]
     assert len(lines) == 1 and "File too large" in lines[0]
     assert list(tmp_path.iterdir()) == []
+
+
+def test_export_sweeps_the_temporary_file_of_a_killed_export(written_demo, tmp_path):
+    """A `.NAME.xxxxxxxx.tmp` a SIGKILLed export left beside the target goes with the next
+    export to that name; other files stay (review)."""
+    import time
+
+    _, folder = written_demo
+    left = tmp_path / ".site.nc.k2j3h4g5.tmp"
+    left.write_bytes(b"\x89HDF\r\n\x1a\n half")
+    other = tmp_path / ".other.nc.k2j3h4g5.tmp"
+    other.write_bytes(b"not ours")
+    hour_ago = time.time() - 3600
+    for path in (left, other):
+        os.utime(path, (hour_ago, hour_ago))
+    assert main(["export", str(folder), "--netcdf", str(tmp_path / "site.nc")]) == 0
+    assert sorted(p.name for p in tmp_path.iterdir()) == [other.name, "site.nc"]
