@@ -421,8 +421,9 @@ _AFTER_STOP = {
     "": "an output folder holds its earlier content or a complete new result, never a mix",
     "batch": "each site's result folder holds its earlier content or a complete new result, "
              "but the network tables and failures.parquet may still describe an earlier run "
-             "or be only partly rewritten: run the batch again, which skips the sites up to "
-             "date and rewrites them whole",
+             "or be only partly rewritten (network.json then says so and read_network refuses "
+             "them): run the batch again, which skips the sites up to date and rewrites them "
+             "whole",
     "export": "the NetCDF file is the earlier one (or absent), never half-written",
     "report": "the report folder holds the earlier report (or none) or the complete new one, "
               "never a mix",

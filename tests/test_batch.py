@@ -586,3 +586,48 @@ def test_stopped_batch_does_not_promise_consistent_network_tables(towers, tmp_pa
     assert main(["batch", str(sites), "--quiet"]) in (130, 143)
     err = capsys.readouterr().err
     assert "never a mix" not in err and "network tables" in err and "run the batch again" in err
+
+
+def test_network_tables_are_read_only_when_they_match_their_seal(towers, tmp_path, cluster):
+    """network.json, written last, names every network file and the site folders' manifest
+    seals: tables left incomplete or old by a stopped batch, or older than a site folder, are
+    refused by read_network with "run the batch again"; the rerun reads again (review: kill
+    mid-write left a silent mix of seeds)."""
+    import shutil
+
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(configs["tower0"]), str(configs["tower1"])])
+    report = batch.run_batch(sites, scheduler=cluster.scheduler_address)
+    out = report.out
+    seal = json.loads((out / batch.NETWORK_SEAL).read_text(encoding="utf-8"))
+    assert seal["complete"] is True and sorted(seal["sites"]) == ["tower0", "tower1"]
+    intact = (out / batch.NETWORK_SEAL).read_bytes()
+    daily = batch.read_network(out, "daily")
+
+    # stopped while writing: the seal still says incomplete
+    (out / batch.NETWORK_SEAL).write_text('{"complete": false}')
+    with pytest.raises(InputFileError, match="incomplete.*run the batch again"):
+        batch.read_network(out, "annual")
+    (out / batch.NETWORK_SEAL).write_bytes(intact)
+
+    # stopped between two tables: one site's file is not the recorded one
+    part = out / "network_daily" / "site=tower0" / "part-0.parquet"
+    saved = part.read_bytes()
+    shutil.copyfile(out / "network_daily" / "site=tower1" / "part-0.parquet", part)
+    with pytest.raises(InputFileError, match="network_daily/site=tower0 .* not the file"):
+        batch.read_network(out, "daily")
+    part.write_bytes(saved)
+    pd.testing.assert_frame_equal(batch.read_network(out, "daily"), daily)
+
+    # stopped after some site folders were rewritten: the site's manifest seal moved
+    manifest = out / "tower1" / "manifest.json"
+    saved = manifest.read_bytes()
+    edited = json.loads(saved)
+    edited["seal"] = "0" * 64
+    manifest.write_text(json.dumps(edited), encoding="utf-8")
+    with pytest.raises(InputFileError, match="tower1' changed after the network tables"):
+        batch.read_network(out, "monthly")
+    manifest.write_bytes(saved)
+    batch.run_batch(sites, scheduler=cluster.scheduler_address)
+    assert (out / batch.NETWORK_SEAL).read_bytes() == intact          # rerun: the same seal
+    pd.testing.assert_frame_equal(batch.read_network(out, "daily"), daily)
