@@ -945,10 +945,13 @@ def command_report(args) -> int:
         # the result folder's lock is held while a page inside it is read and written: a
         # run replacing the folder meanwhile would leave a page describing the result
         # before (where the lock file can be made: a read-only copy is not written to)
-        # (an --out elsewhere is locked itself: its leftovers are cleaned before staging)
+        # (an --out outside the result folder is locked itself: its leftovers are cleaned
+        # before staging; a lock file inside the result folder would make it fail its check)
         directory = Path(args.directory)
         out = getattr(args, "out", None)
-        locked = directory if out is None else Path(out)
+        inside = out is None or directory.absolute().resolve() in (
+            Path(out).absolute().resolve(), *Path(out).absolute().resolve().parents)
+        locked = directory if inside else Path(out)
         writable = os.access(locked.absolute().parent, os.W_OK)
         with (folder_lock(locked, DEFAULT_LOCK_TIMEOUT, remove=True) if writable
               else nullcontext()), \

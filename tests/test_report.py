@@ -821,3 +821,22 @@ def test_report_out_holding_other_files_is_refused(folder, tmp_path, capsys):
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and "holds other files and no report.html" in err[0]
     assert _files(notes) == {"todo.txt": b"keep me"}
+
+
+def test_report_out_inside_its_report_folder_leaves_no_lock_file_there(folder, tmp_path,
+                                                                       monkeypatch):
+    """--out DIR/report given explicitly: the lock is the result folder's (beside it), not a
+    `.report.lock` inside the result folder, which would make it fail its manifest check."""
+    directory = tmp_path / "demo-2021"
+    shutil.copytree(folder["directory"], directory)
+    seen = []
+    real = report.folder_lock
+
+    def watching(path, *args, **kwargs):
+        seen.append(Path(path))
+        return real(path, *args, **kwargs)
+
+    monkeypatch.setattr(report, "folder_lock", watching)
+    assert main(["report", str(directory), "--out", str(directory / "report"), "--quiet"]) == 0
+    assert seen == [directory]
+    fluxpart.load(directory)
