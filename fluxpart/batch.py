@@ -822,16 +822,19 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
         For a bad network file, an unreachable scheduler or a bad worker count;
         bad site configs or inputs are not raised but reported per site.
     OutputError
-        If `out` is a file, cannot be made, or is (or lies in) a result folder.
+        If `out` is a file, cannot be made or written in, or is (or lies in) a
+        result folder (all checked before the cluster starts), or if the network
+        tables cannot be written after the sites were.
 
     Notes
     -----
     Inputs travel as paths: every worker must see the client's file system (one
     machine or a shared file system). Each site's folder ``out/<key>`` is written
     by its task exactly as ``fluxpart run SITE.toml --out out/<key>`` does, so the
-    tables are byte-identical to a single run. ``out/network_annual`` and
-    ``out/failures.parquet`` are rewritten on every run and cover the sites of
-    this network file only; a site that fails keeps whatever folder an earlier run
+    tables are byte-identical to a single run. The network datasets,
+    ``out/failures.parquet`` and their seal ``out/network.json`` are rewritten on
+    every run and cover the sites of this network file only; what a killed batch
+    left while writing them is removed at the start; a site that fails keeps whatever folder an earlier run
     left, but is left out of the network table. Local worker processes are spawned
     or, on Linux, forked from a server process (:func:`_start_method`); both import
     the calling script again, so a script that calls this function must do so under
