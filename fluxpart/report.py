@@ -952,7 +952,8 @@ def command_report(args) -> int:
         inside = out is None or directory.absolute().resolve() in (
             Path(out).absolute().resolve(), *Path(out).absolute().resolve().parents)
         locked = directory if inside else Path(out)
-        writable = os.access(locked.absolute().parent, os.W_OK)
+        parent = locked.absolute().parent
+        writable = parent.is_dir() and os.access(parent, os.W_OK)
         with (folder_lock(locked, DEFAULT_LOCK_TIMEOUT, remove=True) if writable
               else nullcontext()), \
                 Progress(len(FIGURES) + 1, "fluxpart report", enabled=enabled) as progress:
