@@ -555,7 +555,8 @@ def _write_network(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFrame]:
         except BaseException:
             shutil.rmtree(staging, ignore_errors=True)
             raise
-    sites = {o.key: str(read_manifest(Path(o.directory)).get("seal")) for o in done}
+    sites = {o.key: {"folder": Path(os.path.relpath(o.directory, out)).as_posix(),
+                     "seal": str(read_manifest(Path(o.directory)).get("seal"))} for o in done}
     atomic_write_bytes(out / NETWORK_SEAL, _seal_bytes({
         "format": _NETWORK_FORMAT, "complete": True, "sites": sites, "files": files,
         "failures": file_sha256(out / FAILURES_FILE)}))
@@ -568,6 +569,8 @@ def _seal_bytes(seal: dict) -> bytes:
 
 def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
     """Refuse network files that do not match :data:`NETWORK_SEAL` or their site folders.
+
+    The seal names each site's folder relative to `out` (``out/<key>`` in a batch).
 
     Output folders of batches before the seal existed have none and are read as they are.
     """
@@ -593,13 +596,14 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
             raise InputFileError(f"{folder}/site={key} in {str(out)!r} is not the file the "
                                  f"batch recorded in {NETWORK_SEAL} (a batch stopped while "
                                  f"rewriting the network tables, or an edit); {rerun}")
-    for key, site_seal in sorted((seal.get("sites") or {}).items()):
+    for key, site in sorted((seal.get("sites") or {}).items()):
+        site_folder = out / str(site.get("folder", key) if isinstance(site, dict) else key)
         try:
-            now = read_manifest(out / key).get("seal")
+            now = read_manifest(site_folder).get("seal")
         except InputFileError:
             now = None
-        if now != site_seal:
-            raise InputFileError(f"the result folder {str(out / key)!r} changed after the "
+        if not isinstance(site, dict) or now != site.get("seal"):
+            raise InputFileError(f"the result folder {str(site_folder)!r} changed after the "
                                  f"network tables were written (a batch stopped after writing "
                                  f"some sites, or a run into that folder); {rerun}")
 
