@@ -13,7 +13,11 @@ The client then writes the network tables:
   ``pandas.read_parquet(path)``, which restore the ``site`` column, or with
   :func:`read_network`;
 - ``<out>/failures.parquet`` — one row per site that failed: its key, config
-  path, error class and message.
+  path, error class and message;
+- ``<out>/network.json`` — written first as "incomplete" and last as the seal of
+  the above: the SHA-256 of each network file and the manifest seal of each site
+  folder they come from. :func:`read_network` refuses files that do not match it
+  (a batch stopped part-way), so the network tables are never read as a mix.
 
 Network file::
 
@@ -35,6 +39,7 @@ folder is up to date (see :func:`is_up_to_date`) unless ``force`` is given.
 from __future__ import annotations
 
 import glob
+import hashlib
 import json
 import logging
 import os
@@ -42,6 +47,7 @@ import re
 import shutil
 import sys
 import tempfile
+import time
 import traceback
 import uuid
 from collections import Counter
@@ -59,7 +65,7 @@ from .fingerprint import code_fingerprint
 from .manifest import CAUTION, MANIFEST_FILE, MANIFEST_FORMAT, library_versions, read_manifest
 from .resultdir import check_folder
 from .schema import units_for_table
-from .store import atomic_write_bytes, file_sha256, read_table, write_table
+from .store import atomic_write_bytes, file_sha256, read_table, unreadable, write_table
 
 __all__ = [
     "BatchReport",
@@ -84,6 +90,10 @@ NETWORK_DATASETS = {"annual": NETWORK_DATASET, "monthly": "network_monthly",
 _PERIOD_COLUMNS = {"annual": "year", "monthly": "month", "daily": "date"}
 #: File of the failures table inside the batch output folder.
 FAILURES_FILE = "failures.parquet"
+#: The network tables' seal inside the batch output folder: written last, it names the SHA-256
+#: of every network file and the manifest seal of every site folder they were read from.
+NETWORK_SEAL = "network.json"
+_NETWORK_FORMAT = "fluxpart-network/1"
 
 _BATCH_KEYS = ("out", "sites")
 _DEFAULT_WORKERS = 2
@@ -91,7 +101,7 @@ _DEFAULT_WORKERS = 2
 #: writable by the owner); ``tempfile.mkdtemp`` would leave them private (0700).
 _DIR_MODE = 0o755
 _CONNECT_TIMEOUT_SECONDS = 10
-_RESERVED_KEYS = {*NETWORK_DATASETS.values(), FAILURES_FILE}
+_RESERVED_KEYS = {*NETWORK_DATASETS.values(), FAILURES_FILE, NETWORK_SEAL}
 _SITE_COLUMNS = {
     "site_name": ("", "the site's [site] name"),
     "latitude": ("degree_north", "latitude of the tower, north positive"),
@@ -511,22 +521,91 @@ def _replace_folder(staging: Path, target: Path) -> None:
         shutil.rmtree(old, ignore_errors=True)
 
 
-def _write_network(outcomes, out: Path) -> pd.DataFrame:
-    """Write the network datasets of the sites that succeeded; return the annual one."""
+def _write_network(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """Write the failures table and the network datasets of the sites that succeeded.
+
+    First :data:`NETWORK_SEAL` is marked incomplete; the files follow; the seal is
+    written last, naming each file's SHA-256 and each site folder's manifest seal,
+    which :func:`read_network` checks. A batch stopped on the way leaves a seal
+    that says incomplete or does not match, never a silent mix.
+
+    Returns
+    -------
+    annual : pandas.DataFrame
+        The annual network table read back.
+    failures : pandas.DataFrame
+        The failures table.
+    """
     done = [o for o in outcomes if o.status != "failed"]
+    atomic_write_bytes(out / NETWORK_SEAL, _seal_bytes({"format": _NETWORK_FORMAT,
+                                                         "complete": False}))
+    failures = _write_failures(outcomes, out)
+    files = {}
     for name, folder in NETWORK_DATASETS.items():
         staging = Path(tempfile.mkdtemp(prefix=f".{folder}.", dir=out))
+        files[folder] = {}
         try:
             os.chmod(staging, _DIR_MODE)
             tables = _unify([_arrow_site(o, name) for o in done], name) if done else []
             for outcome, table in zip(done, tables, strict=True):
-                atomic_write_bytes(staging / f"site={outcome.key}" / "part-0.parquet",
-                                   _parquet_bytes(table))
+                data = _parquet_bytes(table)
+                atomic_write_bytes(staging / f"site={outcome.key}" / "part-0.parquet", data)
+                files[folder][outcome.key] = hashlib.sha256(data).hexdigest()
             _replace_folder(staging, out / folder)
         except BaseException:
             shutil.rmtree(staging, ignore_errors=True)
             raise
-    return read_network_annual(out)
+    sites = {o.key: {"folder": Path(os.path.relpath(o.directory, out)).as_posix(),
+                     "seal": str(read_manifest(Path(o.directory)).get("seal"))} for o in done}
+    atomic_write_bytes(out / NETWORK_SEAL, _seal_bytes({
+        "format": _NETWORK_FORMAT, "complete": True, "sites": sites, "files": files,
+        "failures": file_sha256(out / FAILURES_FILE)}))
+    return read_network_annual(out), failures
+
+
+def _seal_bytes(seal: dict) -> bytes:
+    return (json.dumps(seal, indent=2, sort_keys=True) + "\n").encode()
+
+
+def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
+    """Refuse network files that do not match :data:`NETWORK_SEAL` or their site folders.
+
+    The seal names each site's folder relative to `out` (``out/<key>`` in a batch).
+
+    Output folders of batches before the seal existed have none and are read as they are.
+    """
+    path = out / NETWORK_SEAL
+    if not path.exists():
+        return
+    rerun = "run the batch again, which skips the sites up to date and rewrites the " \
+            "network tables whole"
+    try:
+        seal = json.loads(path.read_text(encoding="utf-8"))
+    except OSError as error:
+        raise unreadable(path, error) from None
+    except ValueError:
+        seal = None
+    if not isinstance(seal, dict) or seal.get("complete") is not True:
+        raise InputFileError(f"the network tables in {str(out)!r} are incomplete ({NETWORK_SEAL} "
+                             f"says so: a batch was stopped while writing them); {rerun}")
+    recorded = (seal.get("files") or {}).get(folder) or {}
+    found = {f.parent.name.removeprefix("site="): f for f in files}
+    for key in sorted(set(found) | set(recorded)):
+        if key not in found or key not in recorded \
+                or file_sha256(found[key]) != recorded[key]:
+            raise InputFileError(f"{folder}/site={key} in {str(out)!r} is not the file the "
+                                 f"batch recorded in {NETWORK_SEAL} (a batch stopped while "
+                                 f"rewriting the network tables, or an edit); {rerun}")
+    for key, site in sorted((seal.get("sites") or {}).items()):
+        site_folder = out / str(site.get("folder", key) if isinstance(site, dict) else key)
+        try:
+            now = read_manifest(site_folder).get("seal")
+        except InputFileError:
+            now = None
+        if not isinstance(site, dict) or now != site.get("seal"):
+            raise InputFileError(f"the result folder {str(site_folder)!r} changed after the "
+                                 f"network tables were written (a batch stopped after writing "
+                                 f"some sites, or a run into that folder); {rerun}")
 
 
 def read_network_annual(out) -> pd.DataFrame:
@@ -570,7 +649,10 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
     ConfigError
         If `table` is not one of the three budget tables.
     InputFileError
-        If `out` holds no such dataset.
+        If `out` holds no such dataset, or its files do not match the seal the
+        batch wrote last (``network.json``: a batch stopped while writing them, or
+        after rewriting some site folders); the message says to run the batch
+        again. Folders of batches before the seal existed are read unchecked.
     """
     import pyarrow.dataset as ds
 
@@ -582,6 +664,7 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
         raise InputFileError(f"{str(path)!r} does not exist: {str(out)!r} is not a batch "
                              "output folder")
     files = sorted(path.glob("site=*/*.parquet"))
+    _check_network_seal(Path(out), NETWORK_DATASETS[table], files)
     if not files:
         return pd.DataFrame({"site": pd.Series([], dtype="str")})
     dataset = ds.dataset([str(f) for f in files], format="parquet",
@@ -743,16 +826,19 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
         For a bad network file, an unreachable scheduler or a bad worker count;
         bad site configs or inputs are not raised but reported per site.
     OutputError
-        If `out` is a file, cannot be made, or is (or lies in) a result folder.
+        If `out` is a file, cannot be made or written in, or is (or lies in) a
+        result folder (all checked before the cluster starts), or if the network
+        tables cannot be written after the sites were.
 
     Notes
     -----
     Inputs travel as paths: every worker must see the client's file system (one
     machine or a shared file system). Each site's folder ``out/<key>`` is written
     by its task exactly as ``fluxpart run SITE.toml --out out/<key>`` does, so the
-    tables are byte-identical to a single run. ``out/network_annual`` and
-    ``out/failures.parquet`` are rewritten on every run and cover the sites of
-    this network file only; a site that fails keeps whatever folder an earlier run
+    tables are byte-identical to a single run. The network datasets,
+    ``out/failures.parquet`` and their seal ``out/network.json`` are rewritten on
+    every run and cover the sites of this network file only; what a killed batch
+    left while writing them is removed at the start; a site that fails keeps whatever folder an earlier run
     left, but is left out of the network table. Local worker processes are spawned
     or, on Linux, forked from a server process (:func:`_start_method`); both import
     the calling script again, so a script that calls this function must do so under
@@ -760,24 +846,25 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     cluster of a process and keeps that moment's environment variables for the
     workers of later clusters.
     """
+    started = time.time()
     network = read_sites_file(sites_file)
     out = (Path(out) if out is not None else network.out).resolve()
     _check_out(out)
+    _make_writable_out(out)          # before the cluster starts and any site is computed
+    _sweep_leftovers(out, started)
     client, cluster = _client(scheduler, workers)
     try:
-        try:
-            out.mkdir(parents=True, exist_ok=True)
-        except OSError as error:      # a file on the way, a read-only place
-            raise OutputError(f"batch output folder {str(out)!r} cannot be made "
-                              f"({error.strerror or error}); choose another --out or "
-                              "[batch] out") from None
         outcomes = _run_tasks(client, network.sites, out, force, progress)
     finally:
         client.close()
         if cluster is not None:
             cluster.close()
-    failures = _write_failures(outcomes, out)
-    table = _write_network(outcomes, out)
+    try:
+        table, failures = _write_network(outcomes, out)
+    except OSError as error:          # a full disk after the sites were written
+        raise OutputError(f"writing the network tables in {str(out)!r} failed "
+                          f"({error.strerror or error}); the site folders written are whole, "
+                          "and a rerun skips them and rewrites the network tables") from None
     return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures,
                        warnings=tuple(same_input_sites(outcomes)))
 
@@ -831,6 +918,66 @@ def _check_out(out: Path) -> None:
             raise OutputError(f"batch output folder {str(out)!r} {where} the result folder "
                               f"{str(folder)!r}, which must hold only the files its manifest "
                               "lists; choose another --out or [batch] out outside it")
+
+
+def _make_writable_out(out: Path) -> None:
+    """Make the batch output folder and check that files can be written in it.
+
+    Raises
+    ------
+    OutputError
+        If `out` cannot be made or written in (a read-only place, no permission, an
+        immutable folder): said before any site is computed, not after all of them.
+    """
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+        with tempfile.TemporaryFile(dir=out):
+            pass
+    except OSError as error:          # a file on the way, a read-only place
+        raise OutputError(f"batch output folder {str(out)!r} cannot be written "
+                          f"({error.strerror or error}); choose another --out or "
+                          "[batch] out") from None
+
+
+#: Staging folders of the network datasets (``.network_annual.xxxxxxxx`` and the old copy
+#: ``.network_annual.old.xxxxxxxx`` of :func:`_replace_folder`) and temporary files of
+#: ``failures.parquet``, as a batch killed while writing them leaves them.
+_LEFTOVER = re.compile(
+    rf"^\.(?:(?:{'|'.join(map(re.escape, NETWORK_DATASETS.values()))})\.(?:old\.)?"
+    rf"[a-z0-9_]{{8}}|{re.escape(FAILURES_FILE)}\.[a-z0-9_]{{8}}\.tmp)$")
+
+
+def _sweep_leftovers(out: Path, started: float) -> list[str]:
+    """Remove what a killed batch left while writing its network tables in `out`.
+
+    Only entries of `out` itself whose names match :data:`_LEFTOVER` and that are
+    older than this batch (modified before `started`, seconds since the epoch) go:
+    a batch writing into the same folder at this moment is left alone.
+
+    Returns
+    -------
+    list of str
+        The names removed.
+    """
+    removed = []
+    try:
+        entries = list(out.iterdir())
+    except OSError:
+        return removed
+    for entry in entries:
+        if not _LEFTOVER.match(entry.name) or entry.is_symlink():
+            continue
+        try:
+            if entry.stat().st_mtime >= started:
+                continue
+            if entry.is_dir():
+                shutil.rmtree(entry)
+            else:
+                entry.unlink()
+        except OSError:
+            continue
+        removed.append(entry.name)
+    return removed
 
 
 def _run_tasks(client, sites, out: Path, force: bool, progress) -> list[SiteOutcome]:

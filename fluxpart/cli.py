@@ -417,6 +417,23 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
+#: What a command stopped by Ctrl-C or SIGTERM leaves behind, by command ('' for the rest).
+_AFTER_STOP = {
+    "": "an output folder holds its earlier content or a complete new result, never a mix",
+    "batch": "each site's result folder holds its earlier content or a complete new result, "
+             "but the network tables and failures.parquet may still describe an earlier run "
+             "or be only partly rewritten (network.json then says so and read_network refuses "
+             "them): run the batch again, which skips the sites up to date and rewrites them "
+             "whole",
+    "export": "the NetCDF file is the earlier one (or absent), never half-written",
+    "report": "the report folder holds the earlier report (or none) or the complete new one, "
+              "never a mix",
+    "verify": "nothing was written",
+    "diff": "nothing was written",
+    "check": "nothing was written",
+}
+
+
 class _Terminated(BaseException):
     """SIGTERM (``kill``, a batch scheduler's time limit) raised in the running command.
 
@@ -503,16 +520,25 @@ def main(argv=None) -> int:
             return args.handler(args)
     except FluxpartError as error:
         print(f"error: {error}", file=sys.stderr)
+        if argv is None and getattr(error, "end_process", False):
+            # a NetCDF write that failed part-way (full disk, ulimit -f) leaves the HDF5
+            # library with objects it cannot close; its clean-up at the interpreter's exit
+            # then crashed the process (SIGSEGV, exit 139) after the error line. Only on this
+            # path, and only as the `fluxpart` process itself (not main() called from Python),
+            # the process ends here: the output is flushed, nothing else is left to do.
+            sys.stdout.flush()
+            sys.stderr.flush()
+            os._exit(2)
         return 2
     except KeyboardInterrupt:
         # a result folder is written whole or not at all (fluxpart.resultdir), so an
         # interrupt leaves it as it was, or complete if it came after the swap
-        print("error: interrupted (Ctrl-C); an output folder holds its earlier content or "
-              "a complete new result, never a mix", file=sys.stderr)
+        print(f"error: interrupted (Ctrl-C); {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}",
+              file=sys.stderr)
         return 130
     except _Terminated:
-        print("error: terminated (SIGTERM); an output folder holds its earlier content or a "
-              "complete new result, never a mix", file=sys.stderr)
+        print(f"error: terminated (SIGTERM); {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}",
+              file=sys.stderr)
         return 128 + signal.SIGTERM
     except BrokenPipeError:          # output piped into e.g. `head`, which closed early
         sys.stderr.close()

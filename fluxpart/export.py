@@ -41,16 +41,20 @@ version 1.10. https://cfconventions.org (sections 2.5.1 missing data, 3.3 standa
 from __future__ import annotations
 
 import os
+import re
 import tempfile
+import time
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
 
 from .errors import FluxpartError, InputFileError, OutputError
+from .manifest import recorded_paths
 from .units import KG_CARBON_PER_UMOL
 
-__all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf"]
+__all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf",
+           "written_by_fluxpart"]
 
 #: CF standard names used, per exported variable. Each was recalled from the CF
 #: standard name table (m), except the GPP name, which the CF table and DESIGN.md cite.
@@ -70,6 +74,8 @@ STANDARD_NAMES = {
 }
 
 _CONVENTIONS = "CF-1.10"
+#: The first bytes of an HDF5 file (a netCDF-4 file is one), at offset 0 in ours.
+_HDF5_SIGNATURE = b"\x89HDF\r\n\x1a\n"
 _TIME_UNITS = "minutes since 1970-01-01 00:00:00"
 _CALENDAR = "proleptic_gregorian"
 _FLUXES = {
@@ -312,21 +318,39 @@ def write_netcdf(result, path) -> Path:
     result : fluxpart.pipeline.Result or path-like
         A result, or a result folder.
     path : path-like
-        The NetCDF (netCDF-4) file to write; its folder is created.
+        The NetCDF (netCDF-4) file to write; its folder is created. An existing
+        file is replaced only if fluxpart wrote it (:func:`written_by_fluxpart`)
+        and it is none of the files the result was computed from.
 
     Returns
     -------
     pathlib.Path
         The file written.
+
+    Raises
+    ------
+    OutputError
+        If `path` is a folder, an existing file fluxpart did not write, the
+        result's input file or site config, or cannot be written (no permission,
+        a full disk, the file-size limit). Nothing is written then and an existing
+        file is unchanged.
     """
     path = Path(path)
     if path.is_dir():
         raise OutputError(f"--netcdf {str(path)!r} is a folder: give the path of the NetCDF "
                           "file to write, e.g. result.nc")
+    directory = None
+    if isinstance(result, (str, os.PathLike)):
+        from .pipeline import load
+
+        directory, result = Path(result), load(result)
+    _check_target(path, result.provenance, directory)
+    started = time.time()
     dataset = to_xarray(result)
     engine = _engine()
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
+        _sweep_temporary(path, started)
         handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp",
                                              dir=path.parent)
     except OSError as error:        # a read-only medium, no permission, a file in the path
@@ -337,10 +361,92 @@ def write_netcdf(result, path) -> Path:
         dataset.to_netcdf(temporary, engine=engine, format="NETCDF4")
         os.chmod(temporary, 0o644)
         os.replace(temporary, path)
+    except OSError as error:        # a full disk, the file-size limit (ulimit -f), an I/O error
+        Path(temporary).unlink(missing_ok=True)
+        reason = os.strerror(error.errno) if error.errno else str(error).split(" (")[0]
+        failed = OutputError(f"--netcdf {str(path)!r}: writing failed ({reason}); nothing was "
+                             "written and an existing file is unchanged: free space, or "
+                             "choose another place")
+        # the HDF5 library may crash the interpreter's exit after such a failure (see
+        # fluxpart.cli.main, which ends the process at once after printing this error)
+        failed.end_process = True
+        raise failed from None
     except BaseException:
         Path(temporary).unlink(missing_ok=True)
         raise
     return path
+
+
+def _sweep_temporary(path: Path, started: float) -> None:
+    """Remove the temporary files of exports to `path` killed before `started` [s since epoch].
+
+    Only ``.NAME.xxxxxxxx.tmp`` beside `path` (the names :func:`write_netcdf` gives them)
+    last modified before this export began; one being written now is left alone.
+    """
+    pattern = re.compile(rf"^\.{re.escape(path.name)}\.[a-z0-9_]{{8}}\.tmp$")
+    for entry in path.parent.iterdir():
+        if not pattern.match(entry.name) or entry.is_symlink():
+            continue
+        try:
+            if entry.is_file() and entry.stat().st_mtime < started:
+                entry.unlink()
+        except OSError:
+            continue
+
+
+def _check_target(path: Path, provenance, directory) -> None:
+    """Refuse to replace a file fluxpart did not write, or one the result was computed from."""
+    if not path.exists():
+        return
+    recorded = recorded_paths(provenance if isinstance(provenance, dict) else {},
+                              directory if directory is not None else Path.cwd())
+    for source in recorded:
+        try:
+            same = os.path.samefile(source, path)
+        except OSError:             # the recorded file is gone or unreadable
+            same = False
+        if same:
+            raise OutputError(f"--netcdf {str(path)!r} is a file the result was computed from "
+                              "(an input file or the site config recorded in its manifest); "
+                              "it is not replaced: choose another file name")
+    if not written_by_fluxpart(path):
+        raise OutputError(f"--netcdf {str(path)!r} is an existing file that fluxpart did not "
+                          "write (not a NetCDF file whose global attribute source reads "
+                          "\"fluxpart ...\"); it is not replaced: choose another file name, "
+                          "or delete the file first")
+
+
+def written_by_fluxpart(path) -> bool:
+    """True when `path` is a NetCDF file that :func:`write_netcdf` wrote.
+
+    Recognised by the HDF5 signature at its start (netCDF-4 files) and, read back,
+    the global attribute ``source`` = ``"fluxpart <version>"`` that
+    :func:`to_xarray` sets. Any file that cannot be opened so is not one.
+
+    Parameters
+    ----------
+    path : path-like
+        An existing file.
+
+    Returns
+    -------
+    bool
+        Whether an export may replace it.
+    """
+    try:
+        with open(path, "rb") as handle:
+            if handle.read(len(_HDF5_SIGNATURE)) != _HDF5_SIGNATURE:
+                return False
+    except OSError:
+        return False
+    xr = _xarray()
+    try:
+        with xr.open_dataset(path, engine=_engine(), decode_cf=False,
+                             decode_times=False) as dataset:
+            source = dataset.attrs.get("source")
+    except Exception:               # noqa: BLE001 - any file the engine cannot read is not ours
+        return False
+    return isinstance(source, str) and source.startswith("fluxpart ")
 
 
 def command_export(args) -> int:

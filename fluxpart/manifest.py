@@ -40,7 +40,7 @@ from .errors import InputFileError
 
 __all__ = ["CAUTION", "MANIFEST_FILE", "MANIFEST_FORMAT", "REPORT_FOLDER", "RUN_LOG",
            "build_manifest", "library_versions", "manifest_seal", "portable_provenance",
-           "read_manifest", "recorded_path", "seal_intact", "without_paths"]
+           "read_manifest", "recorded_path", "recorded_paths", "seal_intact", "without_paths"]
 
 MANIFEST_FORMAT = "fluxpart-result/2"
 MANIFEST_FILE = "manifest.json"
@@ -174,6 +174,26 @@ def recorded_path(directory, entry: dict) -> Path | None:
     return path if path.is_absolute() else Path(os.path.abspath(Path(directory) / path))
 
 
+def recorded_paths(provenance: dict, directory) -> list[Path]:
+    """Where every recorded input file and site config points now.
+
+    Parameters
+    ----------
+    provenance : dict
+        A result's provenance (the manifest's, with paths relative to the result
+        folder, or a computed result's, with absolute paths).
+    directory : path-like
+        The result folder, which relative paths are taken from.
+
+    Returns
+    -------
+    list of pathlib.Path
+        Absolute paths, the input file(s) first; entries without a path are left out.
+    """
+    found = (recorded_path(directory, entry) for entry in _path_entries(provenance))
+    return [path for path in found if path is not None]
+
+
 def build_manifest(tables: dict, *, site: dict, config: dict, seed, provenance: dict,
                    warnings, versions: dict, code: dict, platform_facts: dict,
                    directory) -> dict:
@@ -231,7 +251,16 @@ def read_manifest(directory) -> dict:
 
     Use :func:`fluxpart.resultdir.read_folder` to also check the seal and every file.
     """
-    path = Path(directory) / MANIFEST_FILE
+    try:
+        return _read_manifest(Path(directory))
+    except OSError as error:            # no permission on the folder or the file
+        from .store import unreadable
+
+        raise unreadable(error.filename or directory, error) from None
+
+
+def _read_manifest(directory: Path) -> dict:
+    path = directory / MANIFEST_FILE
     if not Path(directory).exists():
         raise InputFileError(f"the result folder {str(directory)!r} does not exist: give the "
                              "folder that fluxpart run or batch wrote (its --out)")

@@ -54,7 +54,14 @@ from .figures import (
     window_status,
 )
 from .manifest import CAUTION
-from .resultdir import DEFAULT_LOCK_TIMEOUT, folder_lock, read_folder
+from .resultdir import (
+    DEFAULT_LOCK_TIMEOUT,
+    clean_leftovers,
+    folder_lock,
+    make_staging,
+    read_folder,
+    swapped_in,
+)
 from .store import atomic_write_bytes
 from .units import CARBON_UNIT, FLUX_UNIT, T_CO2_HA_PER_G_C_M2, display_unit
 
@@ -841,6 +848,9 @@ def build_report(directory, out=None, *, progress=None) -> Path:
     ------
     InputFileError
         If `directory` is not a result folder or a table is missing.
+    OutputError
+        If `out` is a file or a folder of other files than a report, or cannot
+        be written (no permission, a full disk); `out` is then unchanged.
     FluxpartError
         If matplotlib (the ``report`` extra) is not installed.
 
@@ -853,31 +863,58 @@ def build_report(directory, out=None, *, progress=None) -> Path:
     data-decimals="1">``; each summary number in a ``<span data-summary="nee"
     data-year="2021" data-value="...">``. PNG files are written without
     timestamps, so the same folder and library versions give the same bytes.
+    The figures and the page are written into a staging folder beside `out`
+    that then replaces `out` whole (:func:`fluxpart.resultdir.swapped_in`): a
+    failure (a full disk) leaves the earlier report, or none, never a mix.
     """
     from .figures import _matplotlib
 
     _matplotlib()  # fail before reading anything when the extra is missing
     directory = Path(directory)
-    written = read_written(directory)
     out = directory / "report" if out is None else Path(out)
-    if out.exists() and not out.is_dir():
-        raise OutputError(f"--out {str(out)!r} is an existing file, not a folder: give a folder "
-                          "for the report page and its figures")
+    _check_report_folder(out)
+    try:
+        # staging folders of a report killed earlier (in the result folder, they would make
+        # it fail its manifest check below)
+        clean_leftovers(out)
+    except OSError:
+        pass                        # a read-only place: the write below says so
+    written = read_written(directory)
     interval = interval_minutes(written.timeseries.index)
     tick = progress if progress is not None else (lambda: None)
     figures = draw_figures(written, tick)
     page = _page(written, directory, figures, interval).encode("utf-8")
-    # every byte is ready before the first file is written: a failure leaves no half report
-    path = out / "report.html"
+    # every byte is ready before the first file is written, and the files go into a staging
+    # folder beside `out` that replaces it whole: a failure leaves the earlier report (or
+    # none), never new figures beside an old page
     try:
-        for figure in figures:
-            atomic_write_bytes(out / figure.name, figure.png)
-        atomic_write_bytes(path, page)
+        out.parent.mkdir(parents=True, exist_ok=True)
+        staging = make_staging(out)
+        with swapped_in(staging, out):
+            for figure in figures:
+                atomic_write_bytes(staging / figure.name, figure.png)
+            atomic_write_bytes(staging / "report.html", page)
     except OSError as error:        # a read-only medium, no permission, a full disk
         raise OutputError(f"the report folder {str(out)!r} cannot be written "
-                          f"({error.strerror or error}); give --out a writable folder") from None
+                          f"({error.strerror or error}); the earlier report, if any, is "
+                          "unchanged: free space, or give --out a writable folder") from None
     tick()
-    return path
+    return out / "report.html"
+
+
+def _check_report_folder(out: Path) -> None:
+    """Refuse a report folder that is a file, or a folder holding other things than a report.
+
+    The report folder is replaced whole, so a folder of other files given as ``--out``
+    would lose them.
+    """
+    if out.exists() and not out.is_dir():
+        raise OutputError(f"--out {str(out)!r} is an existing file, not a folder: give a folder "
+                          "for the report page and its figures")
+    if out.is_dir() and any(out.iterdir()) and not (out / "report.html").is_file():
+        raise OutputError(f"--out {str(out)!r} is a folder that holds other files and no "
+                          "report.html; it is not a report folder, and the report replaces "
+                          "its folder whole: choose an empty or new folder")
 
 
 def command_report(args) -> int:
@@ -908,10 +945,16 @@ def command_report(args) -> int:
         # the result folder's lock is held while a page inside it is read and written: a
         # run replacing the folder meanwhile would leave a page describing the result
         # before (where the lock file can be made: a read-only copy is not written to)
+        # (an --out outside the result folder is locked itself: its leftovers are cleaned
+        # before staging; a lock file inside the result folder would make it fail its check)
         directory = Path(args.directory)
-        inside = getattr(args, "out", None) is None and os.access(
-            directory.absolute().parent, os.W_OK)
-        with (folder_lock(directory, DEFAULT_LOCK_TIMEOUT, remove=True) if inside
+        out = getattr(args, "out", None)
+        inside = out is None or directory.absolute().resolve() in (
+            Path(out).absolute().resolve(), *Path(out).absolute().resolve().parents)
+        locked = directory if inside else Path(out)
+        parent = locked.absolute().parent
+        writable = parent.is_dir() and os.access(parent, os.W_OK)
+        with (folder_lock(locked, DEFAULT_LOCK_TIMEOUT, remove=True) if writable
               else nullcontext()), \
                 Progress(len(FIGURES) + 1, "fluxpart report", enabled=enabled) as progress:
             path = build_report(args.directory, getattr(args, "out", None),

@@ -23,9 +23,10 @@ Leftover staging and retired folders are removed by the next writer.
 
 Reading (:func:`read_folder`, used by ``fluxpart.load``, ``report`` and
 ``verify``): the manifest's seal must match its content, every table must have
-its recorded SHA-256, and the folder must hold nothing else than the manifest,
-its tables and the two unhashed entries it names (the run log and the
-``report/`` folder). Otherwise the folder is refused, naming the file.
+its recorded SHA-256, rows and columns, and the folder must hold nothing else
+than the manifest, its tables and the two unhashed entries it names (the run log
+and the ``report/`` folder). Otherwise the folder is refused, naming the file; a
+file that cannot be read at all (no permission) is an error naming it.
 """
 
 from __future__ import annotations
@@ -60,10 +61,18 @@ from .manifest import (
     read_manifest,
     seal_intact,
 )
-from .store import atomic_write_bytes, file_sha256, read_table, write_table
+from .store import (
+    atomic_write_bytes,
+    file_sha256,
+    read_table,
+    table_shape,
+    unreadable,
+    write_table,
+)
 
 __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_leftovers",
-           "folder_lock", "lock_file", "read_folder", "recover_missing", "write_folder"]
+           "folder_lock", "lock_file", "make_staging", "read_folder", "recover_missing",
+           "swapped_in", "write_folder"]
 
 #: Seconds a writer waits for another writer of the same folder before giving up.
 DEFAULT_LOCK_TIMEOUT = 600.0
@@ -115,7 +124,8 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
         Called with one line of text when the lock is busy and we wait
         (default: printed to stderr).
     remove : bool, optional
-        Delete the lock file when the block ends without an error (default False).
+        Delete the lock file when the block ends, with or without an error
+        (default False).
 
     Raises
     ------
@@ -166,10 +176,12 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
                           f"{error.strerror or error}; choose a writable output folder") from None
     try:
         yield path
+    finally:
+        # also after an error or an interrupt (Ctrl-C, SIGTERM): the block's work is whole
+        # or undone by then, and the file is deleted while the lock is still held
         if remove and locked and _names_locked_file(path, locked[-1]):
             with _suppress_os_error():
                 path.unlink()
-    finally:
         lock.release()
 
 
@@ -318,6 +330,65 @@ def _swap_in(staging: Path, directory: Path) -> None:
     shutil.rmtree(retired, ignore_errors=True)
 
 
+def make_staging(directory) -> Path:
+    """Make a fresh, empty staging folder ``.NAME.staging-*`` beside `directory`.
+
+    Parameters
+    ----------
+    directory : path-like
+        The folder to be replaced (need not exist; its parent must).
+
+    Returns
+    -------
+    pathlib.Path
+        The staging folder (mode 755, like the folders it replaces).
+
+    Raises
+    ------
+    OSError
+        If nothing can be made beside `directory` (the caller names the folder).
+    """
+    directory = _absolute(directory)
+    staging = Path(tempfile.mkdtemp(prefix=f".{directory.name}.{_STAGING}",
+                                    dir=directory.parent))
+    try:
+        os.chmod(staging, _DIR_MODE)
+    except OSError:
+        shutil.rmtree(staging, ignore_errors=True)
+        raise
+    return staging
+
+
+@contextmanager
+def swapped_in(staging: Path, directory):
+    """Fill `staging` in the block; leaving it without an error replaces `directory` whole.
+
+    The files written into `staging` are flushed, then `staging` takes the place of
+    `directory` in one step (:func:`_swap_in`). An error or an interrupt in the block,
+    or in the swap, removes `staging` and leaves `directory` as it was. Hold the
+    folder's lock (:func:`folder_lock`) around it where other writers may run.
+
+    Parameters
+    ----------
+    staging : pathlib.Path
+        From :func:`make_staging` of the same `directory`.
+    directory : path-like
+        The folder replaced.
+
+    Yields
+    ------
+    pathlib.Path
+        `staging`.
+    """
+    try:
+        yield staging
+        _fsync_dir(staging)
+        _swap_in(staging, _absolute(directory))
+    except BaseException:
+        shutil.rmtree(staging, ignore_errors=True)
+        raise
+
+
 def recorded_site_name(directory) -> str | None:
     """The site name in the manifest of the result folder `directory`, or None.
 
@@ -441,8 +512,6 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
         result folder of another site, not writable, or locked by another writer for longer than `lock_timeout`.
         Nothing is changed in that case.
     """
-    from .schema import units_for_table
-
     directory = _absolute(directory)
     site_name = site.get("name") if isinstance(site, dict) else None
     reason = _is_replaceable(directory, site_name)
@@ -460,42 +529,44 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
         if reason:
             raise OutputError(f"output folder {str(directory)!r} {reason}; choose another --out")
         try:
-            staging = Path(tempfile.mkdtemp(prefix=f".{directory.name}.{_STAGING}",
-                                            dir=directory.parent))
-            os.chmod(staging, _DIR_MODE)
+            staging = make_staging(directory)
         except OSError as error:
             raise OutputError(f"cannot write beside the output folder {str(directory)!r}: "
                               f"{error.strerror or error}") from None
         try:
-            entries = {}
-            for name, table in tables.items():
-                frame = table if table.index.name is not None else table.rename_axis("row")
-                columns = [frame.index.name or "index", *frame.columns]
-                file = f"{name}.parquet"
-                sha = write_table(frame, staging / file,
-                                  units_for_table(_unit_table(name), columns), name)
-                entries[name] = {"file": file, "sha256": sha, "rows": len(frame),
-                                 "columns": [str(c) for c in columns]}
-            manifest = build_manifest(
-                entries, site=site, config=config, seed=seed, provenance=provenance,
-                warnings=warnings, versions=library_versions(), code=code_fingerprint(),
-                platform_facts=platform_record(), directory=directory)
-            log = run_log_record(directory, provenance)
-            atomic_write_bytes(staging / RUN_LOG,
-                               (json.dumps(log, indent=2, ensure_ascii=False) + "\n").encode())
-            atomic_write_bytes(staging / MANIFEST_FILE, manifest_bytes(manifest))
-            _fsync_dir(staging)
-            _swap_in(staging, directory)
+            with swapped_in(staging, directory):
+                _write_tables(staging, directory, tables, site=site, config=config, seed=seed,
+                              provenance=provenance, warnings=warnings)
         except OSError as error:
-            shutil.rmtree(staging, ignore_errors=True)
             where = f" ({error.filename})" if error.filename else ""
             raise OutputError(f"writing the result folder {str(directory)!r} failed: "
                               f"{error.strerror or error}{where}; the earlier result, if any, "
                               "is unchanged") from None
-        except BaseException:
-            shutil.rmtree(staging, ignore_errors=True)
-            raise
     return directory
+
+
+def _write_tables(staging: Path, directory: Path, tables: dict, *, site, config, seed,
+                  provenance, warnings) -> None:
+    """Write the tables, the run log and, last, the manifest into `staging`."""
+    from .schema import units_for_table
+
+    entries = {}
+    for name, table in tables.items():
+        frame = table if table.index.name is not None else table.rename_axis("row")
+        columns = [frame.index.name or "index", *frame.columns]
+        file = f"{name}.parquet"
+        sha = write_table(frame, staging / file, units_for_table(_unit_table(name), columns),
+                          name)
+        entries[name] = {"file": file, "sha256": sha, "rows": len(frame),
+                         "columns": [str(c) for c in columns]}
+    manifest = build_manifest(
+        entries, site=site, config=config, seed=seed, provenance=provenance,
+        warnings=warnings, versions=library_versions(), code=code_fingerprint(),
+        platform_facts=platform_record(), directory=directory)
+    log = run_log_record(directory, provenance)
+    atomic_write_bytes(staging / RUN_LOG,
+                       (json.dumps(log, indent=2, ensure_ascii=False) + "\n").encode())
+    atomic_write_bytes(staging / MANIFEST_FILE, manifest_bytes(manifest))
 
 
 # --------------------------------------------------------------------------- reading
@@ -510,8 +581,9 @@ class FolderProblem:
         The file (or folder) at fault, relative to the result folder.
     kind : str
         ``"seal"`` (manifest edited), ``"format"``, ``"missing"``, ``"hash"``
-        (bytes changed), ``"extra"`` (not listed in the manifest) or ``"entry"``
-        (a malformed table entry).
+        (bytes changed), ``"content"`` (rows or columns other than the manifest
+        records), ``"extra"`` (not listed in the manifest) or ``"entry"`` (a
+        malformed table entry).
     detail : str
         What was found.
     """
@@ -529,8 +601,15 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
     """Compare a result folder with its manifest; return every problem found.
 
     Checks the manifest's seal and format, that each listed table exists with
-    its recorded SHA-256, and that nothing else is in the folder than the
-    manifest, its tables, the run log and the ``report/`` folder.
+    its recorded SHA-256 and, read from its footer, the recorded rows and columns,
+    and that nothing else is in the folder than the manifest, its tables, the run
+    log and the ``report/`` folder.
+
+    Raises
+    ------
+    InputFileError
+        If the folder or a listed file cannot be read (no permission, an I/O
+        error): a file that cannot be read is bad input, not a changed result.
     """
     directory = Path(directory)
     problems = []
@@ -572,7 +651,13 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
             problems.append(FolderProblem(file, "hash", f"has SHA-256 {actual}, not the "
                                           f"{entry.get('sha256')} recorded in the manifest: "
                                           "the file changed after it was written"))
-    for path in sorted(directory.iterdir()):
+            continue
+        problems += _shape_problems(path, file, entry)
+    try:
+        entries = sorted(directory.iterdir())
+    except OSError as error:
+        raise unreadable(directory, error) from None
+    for path in entries:
         if path.name in allowed_files and path.is_file() and not path.is_symlink():
             continue
         if path.name in allowed_dirs and path.is_dir() and not path.is_symlink():
@@ -581,9 +666,51 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
             problems.append(FolderProblem(path.name, "extra", "has the name of a listed entry "
                                           "but is not a plain file or folder"))
             continue
+        if path.name.startswith(f".{REPORT_FOLDER}.") and path.is_dir():
+            problems.append(FolderProblem(path.name + "/", "extra",
+                                          "is what an interrupted `fluxpart report` left; "
+                                          "delete it or draw the report again (which removes "
+                                          "it)"))
+            continue
         problems.append(FolderProblem(path.name + ("/" if path.is_dir() else ""), "extra",
                                       "is not listed in the manifest (the folder must hold "
                                       "exactly the files its manifest lists)"))
+    return problems
+
+
+def _shape_problems(path: Path, file: str, entry: dict) -> list[FolderProblem]:
+    """The manifest's recorded rows and columns of a table against its file's footer.
+
+    A table whose SHA-256 was forged along with the manifest's seal (both are public
+    functions) passes the hash check; a row deleted or a column dropped is then still
+    named here, without a rerun. Entries without ``rows`` or ``columns`` (written by
+    hand) are not checked.
+    """
+    rows, columns = entry.get("rows"), entry.get("columns")
+    if not isinstance(rows, int) and not isinstance(columns, list):
+        return []
+    try:
+        found_rows, found_columns = table_shape(path)
+    except InputFileError:
+        return []       # not Parquet at all: reading the table names it (read_table)
+    problems = []
+    if isinstance(rows, int) and rows != found_rows:
+        problems.append(FolderProblem(file, "content", f"has {found_rows} rows, not the "
+                                      f"{rows} recorded in the manifest"))
+    if isinstance(columns, list):
+        # the first recorded column is the index; an unnamed default one is not stored
+        expected = [str(c) for number, c in enumerate(columns)
+                    if not (number == 0 and c == "index" and c not in found_columns)]
+        missing = [c for c in expected if c not in found_columns]
+        extra = [c for c in found_columns if c not in expected]
+        if missing:
+            problems.append(FolderProblem(file, "content", f"lacks column(s) "
+                                          f"{', '.join(map(repr, missing))} that the manifest "
+                                          "records"))
+        if extra:
+            problems.append(FolderProblem(file, "content", f"has column(s) "
+                                          f"{', '.join(map(repr, extra))} that the manifest "
+                                          "does not record"))
     return problems
 
 

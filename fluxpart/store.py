@@ -38,7 +38,8 @@ import pyarrow.parquet as pq
 
 from .errors import InputFileError
 
-__all__ = ["atomic_write_bytes", "column_units", "file_sha256", "read_table", "write_table"]
+__all__ = ["atomic_write_bytes", "column_units", "file_sha256", "read_table", "table_shape",
+           "unreadable", "write_table"]
 
 _SCHEMA_KEY = b"fluxpart"
 #: Facts of a frame's ``attrs`` that travel into the file metadata (set by the
@@ -49,12 +50,43 @@ _CARRIED = ("site", "interval_minutes", "time_convention")
 _FILE_MODE = 0o644
 
 
+def unreadable(path, error: OSError) -> InputFileError:
+    """The error for a file that exists but cannot be read (permissions, an I/O error).
+
+    Parameters
+    ----------
+    path : path-like
+        The file (or folder) that could not be read.
+    error : OSError
+        What the operating system said.
+
+    Returns
+    -------
+    InputFileError
+        One line naming the file and the reason, to be raised by the caller.
+    """
+    where = error.filename if error.filename and str(error.filename) != str(path) else None
+    place = f" (at {str(where)!r})" if where else ""
+    return InputFileError(f"{str(path)!r} cannot be read{place}: {error.strerror or error}; "
+                          "make it and its folder readable by this user")
+
+
 def file_sha256(path) -> str:
-    """Return the hexadecimal SHA-256 of a file's bytes."""
+    """Return the hexadecimal SHA-256 of a file's bytes.
+
+    Raises
+    ------
+    InputFileError
+        If the file cannot be opened or read (no permission, an I/O error); the
+        message names it.
+    """
     digest = hashlib.sha256()
-    with open(path, "rb") as handle:
-        for chunk in iter(lambda: handle.read(1 << 20), b""):
-            digest.update(chunk)
+    try:
+        with open(path, "rb") as handle:
+            for chunk in iter(lambda: handle.read(1 << 20), b""):
+                digest.update(chunk)
+    except OSError as error:
+        raise unreadable(path, error) from None
     return digest.hexdigest()
 
 
@@ -167,15 +199,26 @@ def read_table(path) -> pd.DataFrame:
     path = Path(path)
     if not path.exists():
         raise InputFileError(f"result table {str(path)!r} does not exist")
-    # one file: ParquetFile reads it without pyarrow's dataset layer (half the time of
-    # pq.read_table for the small tables of a result folder, and no pyarrow.dataset import)
-    with pq.ParquetFile(path) as file:
-        table = file.read()
+    try:
+        # one file: ParquetFile reads it without pyarrow's dataset layer (half the time of
+        # pq.read_table for the small tables of a result folder, no pyarrow.dataset import)
+        with pq.ParquetFile(path) as file:
+            table = file.read()
+    except OSError as error:            # no permission, an I/O error
+        raise unreadable(path, error) from None
+    except (pa.ArrowException, ValueError) as error:   # cut short, not Parquet
+        raise InputFileError(f"result table {str(path)!r} is not a readable Parquet file "
+                             f"({error}); the file is damaged: rerun to rewrite the "
+                             "folder") from None
     meta = table.schema.metadata or {}
     if _SCHEMA_KEY not in meta:
         raise InputFileError(f"{str(path)!r} is not a table written by fluxpart "
                              "(no fluxpart schema metadata)")
-    info = json.loads(meta[_SCHEMA_KEY])
+    try:
+        info = json.loads(meta[_SCHEMA_KEY])
+    except ValueError:
+        raise InputFileError(f"{str(path)!r}: its fluxpart schema metadata is not valid "
+                             "JSON; the file is damaged: rerun to rewrite the folder") from None
     frame = table.to_pandas()
     if info.get("index") is not None:
         frame = frame.set_index(info["index"])
@@ -188,6 +231,38 @@ def read_table(path) -> pd.DataFrame:
     attrs["descriptions"] = {column: entry["description"] for column, entry in columns.items()}
     frame.attrs.update(attrs)
     return frame
+
+
+def table_shape(path) -> tuple[int, list[str]]:
+    """Rows and column names of a Parquet file, from its footer only (no data read).
+
+    Parameters
+    ----------
+    path : path-like
+        The Parquet file.
+
+    Returns
+    -------
+    rows : int
+        Number of rows.
+    columns : list of str
+        Column names in file order (the stored index first, where it is stored).
+
+    Raises
+    ------
+    InputFileError
+        If the file cannot be read or is not a readable Parquet file; the message
+        names it.
+    """
+    try:
+        metadata = pq.read_metadata(path)
+    except OSError as error:
+        raise unreadable(path, error) from None
+    except (pa.ArrowException, ValueError) as error:
+        raise InputFileError(f"result table {str(path)!r} is not a readable Parquet file "
+                             f"({error}); the file is damaged: rerun to rewrite the "
+                             "folder") from None
+    return metadata.num_rows, list(metadata.schema.to_arrow_schema().names)
 
 
 def column_units(path) -> dict[str, str]:

@@ -850,7 +850,8 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                                  "entry; it is not a complete fluxpart manifest")
     differences = []
     for problem in check_folder(directory, manifest):
-        kind = {"missing": "file", "entry": "file"}.get(problem.kind, problem.kind)
+        kind = {"missing": "file", "entry": "file", "content": "file"}.get(problem.kind,
+                                                                          problem.kind)
         table = next((n for n, e in manifest["tables"].items()
                       if isinstance(e, dict) and e.get("file") == problem.file), "folder")
         if kind == "hash":

@@ -491,3 +491,143 @@ def test_sites_computed_from_the_same_input_are_warned_about(tmp_path):
     assert warnings[0].startswith("sites 'fen', 'fen_copy' were computed from the same input")
     assert "2 times" in warnings[0] and "[input] path" in warnings[0]
     assert batch.same_input_sites(outcomes[2:]) == []
+
+
+# --------------------------------------------------------------------------- output folder
+
+
+def _no_cluster(*args, **kwargs):
+    raise AssertionError("the cluster was started")
+
+
+def test_unwritable_output_folder_is_refused_before_any_work(towers, tmp_path, monkeypatch,
+                                                            capsys):
+    """An output folder files cannot be written in (simulated: root may write anywhere): one
+    error line, exit 2, before the cluster starts (review: every site was attempted, then a
+    PermissionError traceback from failures.parquet)."""
+    import tempfile
+
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(configs["tower0"])])
+    real = tempfile.TemporaryFile
+
+    def denied(*args, dir=None, **kwargs):
+        if dir is not None and Path(dir).name == "network-output":
+            raise PermissionError(13, "Permission denied", str(dir))
+        return real(*args, dir=dir, **kwargs)
+
+    monkeypatch.setattr(batch, "_client", _no_cluster)
+    monkeypatch.setattr(tempfile, "TemporaryFile", denied)
+    assert main(["batch", str(sites), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error:") and "network-output" in err[0]
+    assert "cannot be written (Permission denied)" in err[0]
+
+
+@pytest.mark.skipif(os.name != "posix" or os.geteuid() == 0,
+                    reason="needs POSIX permissions that apply (not root)")
+def test_read_only_output_folder_is_refused_before_any_work(towers, tmp_path, monkeypatch,
+                                                           capsys):
+    """The same with a real read-only folder."""
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(configs["tower0"])])
+    out = tmp_path / "network-output"
+    out.mkdir()
+    out.chmod(0o500)
+    monkeypatch.setattr(batch, "_client", _no_cluster)
+    try:
+        assert main(["batch", str(sites), "--quiet"]) == 2
+        assert "cannot be written" in capsys.readouterr().err
+    finally:
+        out.chmod(0o700)
+
+
+def test_staging_left_by_a_killed_batch_is_swept_at_the_next_start(towers, tmp_path,
+                                                                   monkeypatch):
+    """`.network_*` staging folders and temporary failures files older than the batch go at its
+    start; other hidden entries, and staging newer than the batch (another batch writing
+    now), stay (review: kept after two clean reruns)."""
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(configs["tower0"])])
+    out = tmp_path / "network-output"
+    stale = [out / ".network_daily.9w_2rx51", out / ".network_annual.old.abcd_123",
+             out / ".failures.parquet.k2j3h4g5.tmp"]
+    kept = [out / ".network_notes", out / "site_a", out / ".network_daily.keep"]
+    for path in stale[:2] + kept[:2]:
+        (path / "site=x").mkdir(parents=True)
+        (path / "site=x" / "part-0.parquet").write_bytes(b"PAR1")
+    stale[2].write_bytes(b"PAR1")
+    kept[2].write_text("notes")
+    hour_ago = time.time() - 3600
+    for path in stale + kept:
+        os.utime(path, (hour_ago, hour_ago))
+    now = out / ".network_monthly.n0wwr1t3"        # a batch writing at this moment
+    now.mkdir()
+    os.utime(now, (time.time() + 60, time.time() + 60))
+    monkeypatch.setattr(batch, "_client", lambda *a: (_ for _ in ()).throw(ConfigError("stop")))
+    with pytest.raises(ConfigError, match="stop"):
+        batch.run_batch(sites)
+    assert [p.exists() for p in stale] == [False] * 3
+    assert all(p.exists() for p in kept) and now.exists()
+
+
+@pytest.mark.parametrize("signal_name", ["SIGTERM", "Ctrl-C"])
+def test_stopped_batch_does_not_promise_consistent_network_tables(towers, tmp_path,
+                                                                  monkeypatch, capsys,
+                                                                  signal_name):
+    """A stopped batch says the site folders are whole and the network tables are rewritten
+    whole by the next run, not "never a mix" (review: the tables were old and mixed)."""
+    from fluxpart import cli
+
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(configs["tower0"])])
+    stop = cli._Terminated if signal_name == "SIGTERM" else KeyboardInterrupt
+    monkeypatch.setattr(batch, "run_batch", lambda *a, **k: (_ for _ in ()).throw(stop()))
+    assert main(["batch", str(sites), "--quiet"]) in (130, 143)
+    err = capsys.readouterr().err
+    assert "never a mix" not in err and "network tables" in err and "run the batch again" in err
+
+
+def test_network_tables_are_read_only_when_they_match_their_seal(towers, tmp_path, cluster):
+    """network.json, written last, names every network file and the site folders' manifest
+    seals: tables left incomplete or old by a stopped batch, or older than a site folder, are
+    refused by read_network with "run the batch again"; the rerun reads again (review: kill
+    mid-write left a silent mix of seeds)."""
+    import shutil
+
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(configs["tower0"]), str(configs["tower1"])])
+    report = batch.run_batch(sites, scheduler=cluster.scheduler_address)
+    out = report.out
+    seal = json.loads((out / batch.NETWORK_SEAL).read_text(encoding="utf-8"))
+    assert seal["complete"] is True and sorted(seal["sites"]) == ["tower0", "tower1"]
+    intact = (out / batch.NETWORK_SEAL).read_bytes()
+    daily = batch.read_network(out, "daily")
+
+    # stopped while writing: the seal still says incomplete
+    (out / batch.NETWORK_SEAL).write_text('{"complete": false}')
+    with pytest.raises(InputFileError, match="incomplete.*run the batch again"):
+        batch.read_network(out, "annual")
+    (out / batch.NETWORK_SEAL).write_bytes(intact)
+
+    # stopped between two tables: one site's file is not the recorded one
+    part = out / "network_daily" / "site=tower0" / "part-0.parquet"
+    saved = part.read_bytes()
+    shutil.copyfile(out / "network_daily" / "site=tower1" / "part-0.parquet", part)
+    with pytest.raises(InputFileError, match="network_daily/site=tower0 .* not the file"):
+        batch.read_network(out, "daily")
+    part.write_bytes(saved)
+    pd.testing.assert_frame_equal(batch.read_network(out, "daily"), daily)
+
+    # stopped after some site folders were rewritten: the site's manifest seal moved
+    manifest = out / "tower1" / "manifest.json"
+    saved = manifest.read_bytes()
+    edited = json.loads(saved)
+    edited["seal"] = "0" * 64
+    manifest.write_text(json.dumps(edited), encoding="utf-8")
+    with pytest.raises(InputFileError, match="tower1' changed after the network tables"):
+        batch.read_network(out, "monthly")
+    manifest.write_bytes(saved)
+    batch.run_batch(sites, scheduler=cluster.scheduler_address)
+    assert (out / batch.NETWORK_SEAL).read_bytes() == intact          # rerun: the same seal
+    pd.testing.assert_frame_equal(batch.read_network(out, "daily"), daily)

@@ -1,5 +1,7 @@
 """CF-1.10 NetCDF export, reopened with xarray as a modeller would (issue 15)."""
 
+import errno
+import os
 from pathlib import Path
 
 import numpy as np
@@ -139,3 +141,116 @@ def test_report_out_naming_a_file_is_one_error_line(written_demo, tmp_path, caps
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("error:") and "existing file" in err[0]
     assert target.read_text() == "keep me"
+
+
+@pytest.fixture(scope="module")
+def bundle_result(tmp_path_factory):
+    """A short run of a site config: its folder records the input file and the config."""
+    from bundles import make_bundle
+
+    from fluxpart.pipeline import process_site_config
+
+    root = tmp_path_factory.mktemp("bundle")
+    config = make_bundle(root)
+    return root, process_site_config(config).write(root / "out")
+
+
+@pytest.mark.parametrize("victim", ["tower.csv", "site.toml"])
+def test_export_never_replaces_the_input_or_the_site_config(bundle_result, capsys, victim):
+    """--netcdf naming the run's own input or config: refused, the file unchanged (review:
+    the input CSV became HDF5 and verify then failed)."""
+    root, folder = bundle_result
+    before = (root / victim).read_bytes()
+    assert main(["export", str(folder), "--netcdf", str(root / victim)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error:") and victim in err[0]
+    assert "computed from" in err[0]
+    assert (root / victim).read_bytes() == before
+
+
+def test_export_replaces_only_a_netcdf_file_it_wrote(written_demo, tmp_path, capsys):
+    """An existing file of another kind (text, or an HDF5 file fluxpart did not write) is
+    kept and refused; a NetCDF file an earlier export wrote is replaced."""
+    _, folder = written_demo
+    notes = tmp_path / "notes.nc"
+    notes.write_text("keep me")
+    assert main(["export", str(folder), "--netcdf", str(notes)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "fluxpart did not write" in err[0]
+    assert notes.read_text() == "keep me"
+    foreign = tmp_path / "foreign.nc"
+    xr.Dataset({"x": ("t", np.arange(3.0))}, attrs={"source": "another program"}).to_netcdf(
+        foreign, engine="h5netcdf")
+    before = foreign.read_bytes()
+    assert main(["export", str(folder), "--netcdf", str(foreign)]) == 2
+    assert foreign.read_bytes() == before
+    ours = tmp_path / "ours.nc"
+    assert main(["export", str(folder), "--netcdf", str(ours)]) == 0
+    ours.write_bytes(ours.read_bytes())            # a new file of the same content
+    stamp = ours.stat().st_ino
+    capsys.readouterr()
+    assert main(["export", str(folder), "--netcdf", str(ours)]) == 0
+    assert ours.stat().st_ino != stamp             # replaced by the new export
+
+
+@pytest.mark.parametrize("code", [errno.ENOSPC, errno.EFBIG])
+def test_export_on_a_full_disk_is_one_error_line_and_no_file(written_demo, tmp_path,
+                                                             monkeypatch, capsys, code):
+    """The writer failing part-way (full disk, file-size limit): one error line, exit 2, no
+    file and no temporary file left, an existing export unchanged (review: a 64-line
+    traceback and a crash at exit)."""
+    _, folder = written_demo
+    target = tmp_path / "site.nc"
+    assert main(["export", str(folder), "--netcdf", str(target)]) == 0
+    before = target.read_bytes()
+    capsys.readouterr()
+
+    def fail(self, path, *args, **kwargs):
+        Path(path).write_bytes(b"\x89HDF\r\n\x1a\n partial")
+        raise OSError(code, f"Can't synchronously write data (file write failed: {code})")
+
+    monkeypatch.setattr(xr.Dataset, "to_netcdf", fail)
+    assert main(["export", str(folder), "--netcdf", str(target)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error:") and os.strerror(code) in err[0]
+    assert "nothing was written" in err[0]
+    assert [p.name for p in tmp_path.iterdir()] == ["site.nc"] and target.read_bytes() == before
+
+
+def test_export_full_disk_ends_the_process_with_status_2(written_demo, tmp_path):
+    """As the `fluxpart` process itself under a file-size limit set for that child only: exit
+    status 2, not the SIGSEGV (139) of the HDF5 library's clean-up at exit."""
+    import resource
+    import subprocess
+    import sys
+
+    _, folder = written_demo
+    limit = 200_000
+
+    def small_files():
+        resource.setrlimit(resource.RLIMIT_FSIZE, (limit, limit))
+
+    done = subprocess.run([sys.executable, "-m", "fluxpart", "export", str(folder), "--netcdf",
+                           str(tmp_path / "big.nc")], preexec_fn=small_files,
+                          capture_output=True, text=True, timeout=300)
+    lines = done.stderr.strip().splitlines()
+    assert done.returncode == 2, done.stderr[-2000:]
+    assert len(lines) == 1 and "File too large" in lines[0]
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_export_sweeps_the_temporary_file_of_a_killed_export(written_demo, tmp_path):
+    """A `.NAME.xxxxxxxx.tmp` a SIGKILLed export left beside the target goes with the next
+    export to that name; other files stay (review)."""
+    import time
+
+    _, folder = written_demo
+    left = tmp_path / ".site.nc.k2j3h4g5.tmp"
+    left.write_bytes(b"\x89HDF\r\n\x1a\n half")
+    other = tmp_path / ".other.nc.k2j3h4g5.tmp"
+    other.write_bytes(b"not ours")
+    hour_ago = time.time() - 3600
+    for path in (left, other):
+        os.utime(path, (hour_ago, hour_ago))
+    assert main(["export", str(folder), "--netcdf", str(tmp_path / "site.nc")]) == 0
+    assert sorted(p.name for p in tmp_path.iterdir()) == [other.name, "site.nc"]

@@ -755,3 +755,88 @@ def test_page_states_the_respiration_temperature_and_why(folder):
     assert f"respiration temperature</th><td>{html.escape(expected)}" in folder["text"]
     if driver.get("reason"):
         assert html.escape(driver["reason"]) in folder["text"]
+
+
+def _files(folder: Path) -> dict:
+    return {p.name: p.read_bytes() for p in sorted(folder.iterdir())}
+
+
+def test_a_full_disk_leaves_the_earlier_report_whole(folder, tmp_path, monkeypatch, capsys):
+    """The disk fills after three figures: one error line, exit 2, the earlier report/ exactly
+    as it was (no new figure beside the old page) and no staging folder left (review: 3 of 11
+    figures and no page)."""
+    import errno
+
+    directory = tmp_path / "demo-2021"
+    shutil.copytree(folder["directory"], directory)
+    assert main(["report", str(directory), "--quiet"]) == 0
+    before = _files(directory / "report")
+    written = []
+    real = report.atomic_write_bytes
+
+    def fill_up(path, data):
+        if len(written) == 3:
+            raise OSError(errno.ENOSPC, "No space left on device", str(path))
+        written.append(path)
+        real(path, data)
+
+    monkeypatch.setattr(report, "atomic_write_bytes", fill_up)
+    monkeypatch.setattr(report, "_page", lambda *args: "<html>new page</html>")
+    capsys.readouterr()
+    assert main(["report", str(directory), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error:") and "No space left" in err[0]
+    assert _files(directory / "report") == before
+    assert sorted(p.name for p in directory.iterdir() if p.name.startswith(".")) == []
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["demo-2021"]     # no lock file
+    fluxpart.load(directory)
+
+
+def test_report_replaces_its_folder_whole_and_sweeps_a_killed_one(folder, tmp_path):
+    """A stale figure of an earlier page does not survive; a staging folder a killed report
+    left in the result folder is named by load and removed by the next report."""
+    directory = tmp_path / "demo-2021"
+    shutil.copytree(folder["directory"], directory)
+    (directory / "report").mkdir(exist_ok=True)
+    (directory / "report" / "report.html").write_text("old page")
+    (directory / "report" / "old_figure.png").write_bytes(b"old")
+    killed = directory / ".report.staging-k1ll3d00"
+    killed.mkdir()
+    (killed / "daily.png").write_bytes(b"half")
+    with pytest.raises(InputFileError, match="interrupted `fluxpart report`"):
+        fluxpart.load(directory)
+    assert main(["report", str(directory), "--quiet"]) == 0
+    assert not killed.exists() and not (directory / "report" / "old_figure.png").exists()
+    assert "old page" not in (directory / "report" / "report.html").read_text()
+    fluxpart.load(directory)
+
+
+def test_report_out_holding_other_files_is_refused(folder, tmp_path, capsys):
+    """--out naming a folder of other files: refused before drawing, the files untouched
+    (the report replaces its folder whole)."""
+    notes = tmp_path / "notes"
+    notes.mkdir()
+    (notes / "todo.txt").write_text("keep me")
+    assert main(["report", str(folder["directory"]), "--out", str(notes), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "holds other files and no report.html" in err[0]
+    assert _files(notes) == {"todo.txt": b"keep me"}
+
+
+def test_report_out_inside_its_report_folder_leaves_no_lock_file_there(folder, tmp_path,
+                                                                       monkeypatch):
+    """--out DIR/report given explicitly: the lock is the result folder's (beside it), not a
+    `.report.lock` inside the result folder, which would make it fail its manifest check."""
+    directory = tmp_path / "demo-2021"
+    shutil.copytree(folder["directory"], directory)
+    seen = []
+    real = report.folder_lock
+
+    def watching(path, *args, **kwargs):
+        seen.append(Path(path))
+        return real(path, *args, **kwargs)
+
+    monkeypatch.setattr(report, "folder_lock", watching)
+    assert main(["report", str(directory), "--out", str(directory / "report"), "--quiet"]) == 0
+    assert seen == [directory]
+    fluxpart.load(directory)

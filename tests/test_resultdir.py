@@ -380,3 +380,136 @@ def test_run_waits_for_a_folder_locked_before_it_starts(tmp_path, capsys):
     assert "waiting" in capsys.readouterr().err
     assert waited >= 0.9
     assert fluxpart.load(out).annual.shape[0] >= 1
+
+
+# --------------------------------------------------------------------------- unreadable or forged
+
+
+def _reseal(folder: Path, table: str) -> None:
+    """Forge the manifest after a table was edited: its SHA-256 and the seal recomputed
+    (both are public functions; only the rerun of verify can catch this in general)."""
+    import hashlib
+    import json
+
+    from fluxpart.manifest import manifest_bytes, manifest_seal
+
+    manifest = json.loads((folder / "manifest.json").read_text(encoding="utf-8"))
+    entry = manifest["tables"][table]
+    entry["sha256"] = hashlib.sha256((folder / entry["file"]).read_bytes()).hexdigest()
+    manifest["seal"] = manifest_seal({k: v for k, v in manifest.items() if k != "seal"})
+    (folder / "manifest.json").write_bytes(manifest_bytes(manifest))
+
+
+def _commands(folder: Path, intact: Path, tmp_path: Path) -> dict:
+    return {"verify": ["verify", str(folder), "--quiet"],
+            "diff": ["diff", str(intact), str(folder)],
+            "report": ["report", str(folder), "--out", str(tmp_path / "page"), "--quiet"],
+            "export": ["export", str(folder), "--netcdf", str(tmp_path / "x.nc")]}
+
+
+def _one_error_line(capsys, *names) -> str:
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error:"), err
+    assert all(name in err[0] for name in names), err[0]
+    return err[0]
+
+
+@pytest.mark.parametrize("command", ["verify", "diff", "report", "export", "load"])
+@pytest.mark.parametrize("which", ["ustar.parquet", "manifest.json"])
+def test_a_result_file_that_cannot_be_read_is_one_error_line(short_result, tmp_path,
+                                                             monkeypatch, capsys, command,
+                                                             which):
+    """Permission denied on a table or the manifest: exit 2 (bad input), never 1 (for verify
+    "not reproduced") or a traceback, in every command that reads a result folder (review)."""
+    import builtins
+    import pathlib
+
+    from fluxpart.cli import main
+
+    if command in ("report", "export"):
+        pytest.importorskip("matplotlib" if command == "report" else "h5netcdf")
+    intact = short_result.write(tmp_path / "intact")
+    folder = short_result.write(tmp_path / "denied")
+    target = str(folder / which)
+    denied = PermissionError(13, "Permission denied", target)
+    real_open, real_read_text = builtins.open, pathlib.Path.read_text
+
+    def guarded_open(file, *args, **kwargs):
+        if os.fspath(file) == target:
+            raise denied
+        return real_open(file, *args, **kwargs)
+
+    def guarded_read_text(self, *args, **kwargs):
+        if str(self) == target:
+            raise denied
+        return real_read_text(self, *args, **kwargs)
+
+    monkeypatch.setattr(builtins, "open", guarded_open)
+    monkeypatch.setattr(pathlib.Path, "read_text", guarded_read_text)
+    if command == "load":
+        with pytest.raises(InputFileError, match=f"{which}' cannot be read: Permission denied"):
+            fluxpart.load(folder)
+        return
+    assert main(_commands(folder, intact, tmp_path)[command]) == 2
+    _one_error_line(capsys, which, "cannot be read", "Permission denied")
+
+
+@pytest.mark.skipif(os.name != "posix" or os.geteuid() == 0,
+                    reason="needs POSIX permissions that apply (not root)")
+@pytest.mark.parametrize("mode", ["table", "folder"])
+def test_chmod_000_is_one_error_line(short_result, tmp_path, capsys, mode):
+    """The same with real permissions: a table or the whole folder made unreadable."""
+    from fluxpart.cli import main
+
+    folder = short_result.write(tmp_path / "denied")
+    locked = folder / "ustar.parquet" if mode == "table" else folder
+    locked.chmod(0)
+    try:
+        assert main(["verify", str(folder), "--quiet"]) == 2
+        _one_error_line(capsys, "cannot be read")
+    finally:
+        locked.chmod(0o755)
+
+
+@pytest.mark.parametrize("damage", ["row", "column", "cut"])
+def test_a_forged_table_is_named_by_every_reader(short_result, tmp_path, capsys, damage):
+    """A table edited and its hash forged into the resealed manifest: the manifest's rows and
+    columns (or the Parquet footer) name it in diff, report and load, one error line, exit 2,
+    no ArrowInvalid or KeyError traceback (review)."""
+    import pyarrow.parquet as pq
+
+    from fluxpart.cli import main
+
+    intact = short_result.write(tmp_path / "intact")
+    folder = short_result.write(tmp_path / "forged")
+    path = folder / "annual.parquet"
+    table = pq.read_table(path)
+    if damage == "row":
+        pq.write_table(table.slice(1), path)
+        said = "has 0 rows, not the 1 recorded" if table.num_rows == 1 else "rows, not the"
+    elif damage == "column":
+        pq.write_table(table.drop(["nee"]), path)
+        said = "lacks column(s) 'nee'"
+    else:
+        path.write_bytes(path.read_bytes()[:200])
+        said = "is not a readable Parquet file"
+    _reseal(folder, "annual")
+    with pytest.raises(InputFileError, match="annual.parquet"):
+        fluxpart.load(folder)
+    for command in ("diff", "report"):
+        if command == "report":
+            pytest.importorskip("matplotlib")
+        assert main(_commands(folder, intact, tmp_path)[command]) == 2
+        _one_error_line(capsys, "annual.parquet", said)
+    assert resultdir.check_folder(intact, read_folder(intact)[0]) == []
+
+
+def test_failed_or_interrupted_block_leaves_no_lock_file(tmp_path):
+    """The lock file goes when the block ends with an error or Ctrl-C too (review: a report
+    stopped with Ctrl-C left `.DIR.lock`)."""
+    out = tmp_path / "out"
+    for error in (OutputError("disk full"), KeyboardInterrupt()):
+        with pytest.raises(type(error)), folder_lock(out, remove=True):
+            assert resultdir.lock_file(out).exists()
+            raise error
+        assert not resultdir.lock_file(out).exists()
