@@ -597,6 +597,15 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 refusals["vpd"] = refuse
             if warn:
                 warnings.append(warn)
+            # a unit that changed within the record: months that alone are refused (a humid
+            # month that only warns is not counted: fog or a wet season can hold it)
+            months = [] if refuse or warn or "vpd" not in columns else _months_refused(
+                lambda part, sun: _vpd_messages(part, units, columns, interval_minutes)[0],
+                converted, potential, stamps)
+            if months:
+                warnings.append(_changed_within("vpd", columns["vpd"], months, "VPD in another "
+                                                "unit (a tenth or ten times the VPD that tair "
+                                                "and the humidity allow)"))
         rh = converted.get("rh")
         if rh is not None and units.get("rh") in (None, "%") and not _rh_fraction(rh):
             months = _months_refused(lambda part, sun: _rh_fraction(part["rh"]), converted,

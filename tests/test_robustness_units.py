@@ -120,6 +120,7 @@ def test_fahrenheit_air_temperature_of_a_cool_site_refused(seed):
     ("rg", 1e-3, "kW m-2"),          # a pyranometer logged in kW m-2 from July on
     ("nee", 1.0 / 22.7, "mg CO2"),   # a flux exported in mg CO2 m-2 s-1 from July on
     ("rh", 0.01, "fraction"),         # relative humidity logged as a fraction from July on
+    ("vpd", 0.1, "another unit"),     # VPD logged in kPa from July on (1 kPa = 10 hPa, SI)
 ])
 def test_unit_changed_for_a_season_is_warned_with_its_months(variable, factor, what):
     """A unit that changes within the record (a logger program or export changed in July,
