@@ -377,12 +377,21 @@ def _months_refused(check, converted: dict, potential, stamps) -> list:
     return found
 
 
-def _changed_within(name: str, column: str, months: list, what: str) -> str:
-    """The warning for a mix-up found in some months only."""
-    return (f"column {column!r} ({name}): in {len(months)} month(s) ({', '.join(months)}) "
+def _changed_within(check, name: str, columns: dict, what: str, converted: dict, potential,
+                    stamps) -> list:
+    """The warning for a mix-up `check` finds in some calendar months only ([] if none).
+
+    `check` as for :func:`_months_refused`; `columns` maps variables to file columns;
+    `what` says what those months look like.
+    """
+    months = _months_refused(check, converted, potential, stamps)
+    if not months:
+        return []
+    column = columns.get(name, name)
+    return [f"column {column!r} ({name}): in {len(months)} month(s) ({', '.join(months)}) "
             f"the values alone look like {what}, while the whole record does not: the unit, "
             "sign or sensor may have changed within the record; check those months and "
-            "correct them in a copy of the file")
+            "correct them in a copy of the file"]
 
 
 def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes: int):
@@ -567,12 +576,12 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 refusals["nee"] = refuse
             if warn:
                 warnings.append(warn)
-            months = [] if refuse else _months_refused(
-                lambda part, sun: _nee_message(part, units, columns, interval_minutes, sun)[0],
-                converted, potential, stamps)
-            if months:
-                warnings.append(_changed_within("nee", columns["nee"], months, "a flux 22.7 "
-                                                "times too small (mg CO2 m-2 s-1)"))
+            if not refuse:
+                warnings += _changed_within(
+                    lambda part, sun: _nee_message(part, units, columns, interval_minutes,
+                                                   sun)[0],
+                    "nee", columns, "a flux 22.7 times too small (mg CO2 m-2 s-1)",
+                    converted, potential, stamps)
         if "nee" not in refusals:
             refuse, warn = _nee_sign_message(converted, columns, interval_minutes, potential)
             if refuse:
@@ -581,13 +590,13 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 warnings.append(warn)
             # a sign that changed within the record: months with both backwards (a month
             # holds fewer records to tell by, so this only warns)
-            months = [] if refuse or warn else _months_refused(
-                lambda part, sun: _nee_sign_message(part, columns, interval_minutes, sun)[0],
-                converted, potential, stamps)
-            if months:
-                warnings.append(_changed_within("nee", columns["nee"], months, "NEE with the "
-                                                "opposite sign (negative night median, uptake "
-                                                "tail shorter than the release tail)"))
+            if not (refuse or warn):
+                warnings += _changed_within(
+                    lambda part, sun: _nee_sign_message(part, columns, interval_minutes,
+                                                        sun)[0],
+                    "nee", columns, "NEE with the opposite sign (negative night "
+                    "median, uptake tail shorter than the release tail)",
+                    converted, potential, stamps)
         refuse = _tair_message(converted, units, columns, interval_minutes)
         if refuse:
             refusals["tair"] = refuse
@@ -599,30 +608,23 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 warnings.append(warn)
             # a unit that changed within the record: months that alone are refused (a humid
             # month that only warns is not counted: fog or a wet season can hold it)
-            months = [] if refuse or warn or "vpd" not in columns else _months_refused(
-                lambda part, sun: _vpd_messages(part, units, columns, interval_minutes)[0],
-                converted, potential, stamps)
-            if months:
-                warnings.append(_changed_within("vpd", columns["vpd"], months, "VPD in another "
-                                                "unit (a tenth or ten times the VPD that tair "
-                                                "and the humidity allow)"))
+            if not (refuse or warn) and "vpd" in columns:
+                warnings += _changed_within(
+                    lambda part, sun: _vpd_messages(part, units, columns, interval_minutes)[0],
+                    "vpd", columns, "VPD in another unit (a tenth or ten times the VPD "
+                    "that tair and the humidity allow)", converted, potential, stamps)
         rh = converted.get("rh")
         if rh is not None and units.get("rh") in (None, "%") and not _rh_fraction(rh):
-            months = _months_refused(lambda part, sun: _rh_fraction(part["rh"]), converted,
-                                     potential, stamps)
-            if months:
-                warnings.append(_changed_within("rh", columns["rh"], months, "a fraction (all "
-                                                "at most 1.05 %, which no surface air stays "
-                                                "below for a month)"))
+            warnings += _changed_within(
+                lambda part, sun: _rh_fraction(part["rh"]), "rh", columns,
+                "a fraction (all at most 1.05 %, which no surface air stays below for a "
+                "month)", converted, potential, stamps)
         refuse = _rg_message(converted, units, columns, interval_minutes, potential)
         if refuse:
             refusals["rg"] = refuse
         else:
-            months = _months_refused(
+            warnings += _changed_within(
                 lambda part, sun: _rg_message(part, units, columns, interval_minutes, sun),
-                converted, potential, stamps)
-            if months:
-                warnings.append(_changed_within("rg", columns["rg"], months, "another unit "
-                                                "or quantity (kW m-2, MJ m-2, PPFD or net "
-                                                "radiation)"))
+                "rg", columns, "another unit or quantity (kW m-2, MJ m-2, PPFD or net "
+                "radiation)", converted, potential, stamps)
     return refusals, warnings
