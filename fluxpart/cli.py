@@ -183,7 +183,7 @@ def _check_output_folder(out: Path, site_name=None) -> None:
     """
     import tempfile
 
-    from .resultdir import other_site_reason
+    from .resultdir import replace_refusal
 
     out = out.absolute()
     here = Path.cwd().resolve()
@@ -194,20 +194,16 @@ def _check_output_folder(out: Path, site_name=None) -> None:
                             "folder is replaced whole, which would leave this shell in a "
                             "deleted folder: choose a folder below the current one, or run "
                             "from outside it")
-    if out.exists() and not out.is_dir():
-        raise FluxpartError(f"--out {str(out)!r} is an existing file, not a folder; choose "
-                            "another --out")
-    if out.is_dir() and any(out.iterdir()) and not (out / "manifest.json").is_file():
-        raise FluxpartError(f"--out {str(out)!r} is a folder holding other files and no "
-                            "manifest.json (not a fluxpart result folder, which is replaced "
-                            "whole); choose another --out")
+    reason = replace_refusal(out)
+    if reason:
+        raise FluxpartError(f"--out {str(out)!r} {reason}; choose another --out")
     enclosing = _enclosing_result(out.parent)
     if enclosing is not None:
         raise FluxpartError(f"--out {str(out)!r} is inside the result folder "
                             f"{str(enclosing)!r}, which must hold only the files its manifest "
                             "lists; choose an --out outside it")
     if site_name is not None and (out / "manifest.json").is_file():
-        other = other_site_reason(out, site_name() if callable(site_name) else site_name)
+        other = replace_refusal(out, site_name() if callable(site_name) else site_name)
         if other:
             raise FluxpartError(f"--out {str(out)!r} {other}")
     ancestor = out.parent

@@ -582,11 +582,6 @@ def _one_block(inside: set, outside: set) -> bool:
     return False
 
 
-#: UTC offsets in use that are not whole hours [h] (:data:`fluxpart.site.FRACTIONAL_UTC_OFFSETS`):
-#: only these are suggested for a shift that is not whole hours.
-_FRACTIONAL_UTC_OFFSETS = FRACTIONAL_UTC_OFFSETS
-
-
 def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: str | None,
          shift_applied: float, longitude: float, latitude: float | None = None
          ) -> tuple[str, float | None]:
@@ -607,7 +602,8 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
     residual_offset = abs((shift - (offset - utc_offset) * 60.0 + 720.0) % 1440.0 - 720.0)
     suggested = None
     whole_hours = abs(shift - round(hours) * 60.0) <= 15.0
-    used_offset = float(offset).is_integer() or offset in _FRACTIONAL_UTC_OFFSETS
+    # only offsets in use are suggested for a shift that is not whole hours
+    used_offset = float(offset).is_integer() or offset in FRACTIONAL_UTC_OFFSETS
     if abs(offset - utc_offset) >= 0.5 and residual_offset <= 15.0 and used_offset:
         fixes.append(f"[site] utc_offset = {offset:g} (stamps in UTC{offset:+g} h rather than "
                      f"UTC{utc_offset:+g} h)")

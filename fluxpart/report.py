@@ -60,6 +60,7 @@ from .resultdir import (
     folder_lock,
     make_staging,
     read_folder,
+    replace_refusal,
     swapped_in,
 )
 from .store import atomic_write_bytes
@@ -903,18 +904,12 @@ def build_report(directory, out=None, *, progress=None) -> Path:
 
 
 def _check_report_folder(out: Path) -> None:
-    """Refuse a report folder that is a file, or a folder holding other things than a report.
-
-    The report folder is replaced whole, so a folder of other files given as ``--out``
-    would lose them.
-    """
-    if out.exists() and not out.is_dir():
-        raise OutputError(f"--out {str(out)!r} is an existing file, not a folder: give a folder "
-                          "for the report page and its figures")
-    if out.is_dir() and any(out.iterdir()) and not (out / "report.html").is_file():
-        raise OutputError(f"--out {str(out)!r} is a folder that holds other files and no "
-                          "report.html; it is not a report folder, and the report replaces "
-                          "its folder whole: choose an empty or new folder")
+    """Refuse a report folder that is a file, or a folder holding other things than a report
+    (:func:`fluxpart.resultdir.replace_refusal`): the report replaces its folder whole."""
+    reason = replace_refusal(out, marker="report.html", kind="a report folder")
+    if reason:
+        raise OutputError(f"--out {str(out)!r} {reason}: choose an empty or new folder for the "
+                          "report page and its figures")
 
 
 def command_report(args) -> int:

@@ -72,7 +72,7 @@ from .store import (
 
 __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_leftovers",
            "folder_lock", "lock_file", "make_staging", "read_folder", "recover_missing",
-           "swapped_in", "write_folder"]
+           "replace_refusal", "swapped_in", "write_folder"]
 
 #: Seconds a writer waits for another writer of the same folder before giving up.
 DEFAULT_LOCK_TIMEOUT = 600.0
@@ -418,18 +418,39 @@ def other_site_reason(directory, site_name) -> str | None:
             "folder first if it is the same site renamed")
 
 
-def _is_replaceable(directory: Path, site_name=None) -> str | None:
-    """Why `directory` must not be replaced, or None when it may be."""
+def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
+                    kind: str = "a fluxpart result folder") -> str | None:
+    """Why the folder `directory` must not be replaced whole, or None when it may be.
+
+    Parameters
+    ----------
+    directory : path-like
+        The folder a writer is about to replace (a result folder, a report folder).
+    site_name : str, optional
+        For a result folder: the site of the result to be written
+        (:func:`other_site_reason`).
+    marker : str, optional
+        The file a folder of this kind holds (``manifest.json``; ``report.html``).
+    kind : str, optional
+        What such a folder is, for the message.
+
+    Returns
+    -------
+    str or None
+        The reason, to follow the folder's name in a message: it is a file, or a
+        folder holding other files and no `marker` (which replacing would delete), or
+        another site's result; None for a new or empty folder or one of this kind.
+    """
+    directory = Path(directory)
     if not directory.exists():
         return None
     if not directory.is_dir():
         return "exists and is not a folder"
-    entries = list(directory.iterdir())
-    if not entries:
+    if not any(directory.iterdir()):
         return None
-    if not (directory / MANIFEST_FILE).is_file():
-        return ("is a folder that holds other files and no manifest.json; it is not a fluxpart "
-                "result folder, and writing would replace it whole")
+    if not (directory / marker).is_file():
+        return (f"is a folder that holds other files and no {marker}; it is not {kind}, and "
+                "writing would replace it whole")
     return other_site_reason(directory, site_name)
 
 
@@ -514,7 +535,7 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
     """
     directory = _absolute(directory)
     site_name = site.get("name") if isinstance(site, dict) else None
-    reason = _is_replaceable(directory, site_name)
+    reason = replace_refusal(directory, site_name)
     if reason:
         raise OutputError(f"output folder {str(directory)!r} {reason}; choose another --out")
     try:
@@ -525,7 +546,7 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
     with (nullcontext() if lock_held else folder_lock(directory, lock_timeout, notify,
                                                       remove=True)):
         clean_leftovers(directory)
-        reason = _is_replaceable(directory, site_name)
+        reason = replace_refusal(directory, site_name)
         if reason:
             raise OutputError(f"output folder {str(directory)!r} {reason}; choose another --out")
         try:
