@@ -65,7 +65,14 @@ from .fingerprint import code_fingerprint
 from .manifest import CAUTION, MANIFEST_FILE, MANIFEST_FORMAT, library_versions, read_manifest
 from .resultdir import check_folder
 from .schema import units_for_table
-from .store import atomic_write_bytes, file_sha256, read_table, unreadable, write_table
+from .store import (
+    atomic_write_bytes,
+    file_sha256,
+    read_table,
+    remove_stale,
+    unreadable,
+    write_table,
+)
 
 __all__ = [
     "BatchReport",
@@ -948,36 +955,11 @@ _LEFTOVER = re.compile(
 
 
 def _sweep_leftovers(out: Path, started: float) -> list[str]:
-    """Remove what a killed batch left while writing its network tables in `out`.
-
-    Only entries of `out` itself whose names match :data:`_LEFTOVER` and that are
-    older than this batch (modified before `started`, seconds since the epoch) go:
-    a batch writing into the same folder at this moment is left alone.
-
-    Returns
-    -------
-    list of str
-        The names removed.
+    """Remove what a killed batch left while writing its network tables in `out`: entries
+    matching :data:`_LEFTOVER` older than this batch (:func:`fluxpart.store.remove_stale`;
+    a batch writing into the same folder at this moment is left alone). Returns their names.
     """
-    removed = []
-    try:
-        entries = list(out.iterdir())
-    except OSError:
-        return removed
-    for entry in entries:
-        if not _LEFTOVER.match(entry.name) or entry.is_symlink():
-            continue
-        try:
-            if entry.stat().st_mtime >= started:
-                continue
-            if entry.is_dir():
-                shutil.rmtree(entry)
-            else:
-                entry.unlink()
-        except OSError:
-            continue
-        removed.append(entry.name)
-    return removed
+    return remove_stale(out, _LEFTOVER, started)
 
 
 def _run_tasks(client, sites, out: Path, force: bool, progress) -> list[SiteOutcome]:

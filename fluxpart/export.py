@@ -51,6 +51,7 @@ import pandas as pd
 
 from .errors import FluxpartError, InputFileError, OutputError
 from .manifest import recorded_paths
+from .store import remove_stale
 from .units import KG_CARBON_PER_UMOL
 
 __all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf",
@@ -378,20 +379,11 @@ def write_netcdf(result, path) -> Path:
 
 
 def _sweep_temporary(path: Path, started: float) -> None:
-    """Remove the temporary files of exports to `path` killed before `started` [s since epoch].
-
-    Only ``.NAME.xxxxxxxx.tmp`` beside `path` (the names :func:`write_netcdf` gives them)
-    last modified before this export began; one being written now is left alone.
-    """
-    pattern = re.compile(rf"^\.{re.escape(path.name)}\.[a-z0-9_]{{8}}\.tmp$")
-    for entry in path.parent.iterdir():
-        if not pattern.match(entry.name) or entry.is_symlink():
-            continue
-        try:
-            if entry.is_file() and entry.stat().st_mtime < started:
-                entry.unlink()
-        except OSError:
-            continue
+    """Remove the temporary files of exports to `path` killed before `started` [s since epoch]:
+    only ``.NAME.xxxxxxxx.tmp`` beside `path` (the names :func:`write_netcdf` gives them),
+    a file being written now left alone (:func:`fluxpart.store.remove_stale`)."""
+    remove_stale(path.parent, re.compile(rf"^\.{re.escape(path.name)}\.[a-z0-9_]{{8}}\.tmp$"),
+                 started)
 
 
 def _check_target(path: Path, provenance, directory) -> None:

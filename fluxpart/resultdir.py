@@ -445,7 +445,7 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     if not directory.exists():
         return None
     if not directory.is_dir():
-        return "exists and is not a folder"
+        return "exists and is not a folder (an existing file)"
     if not any(directory.iterdir()):
         return None
     if not (directory / marker).is_file():

@@ -38,8 +38,8 @@ import pyarrow.parquet as pq
 
 from .errors import InputFileError
 
-__all__ = ["atomic_write_bytes", "column_units", "file_sha256", "read_table", "table_shape",
-           "unreadable", "write_table"]
+__all__ = ["atomic_write_bytes", "column_units", "file_sha256", "read_table", "remove_stale",
+           "table_shape", "unreadable", "write_table"]
 
 _SCHEMA_KEY = b"fluxpart"
 #: Facts of a frame's ``attrs`` that travel into the file metadata (set by the
@@ -69,6 +69,48 @@ def unreadable(path, error: OSError) -> InputFileError:
     place = f" (at {str(where)!r})" if where else ""
     return InputFileError(f"{str(path)!r} cannot be read{place}: {error.strerror or error}; "
                           "make it and its folder readable by this user")
+
+
+def remove_stale(folder, pattern, before: float) -> list[str]:
+    """Remove the entries of `folder` a killed writer left: names matching `pattern`,
+    last modified before `before`.
+
+    Parameters
+    ----------
+    folder : path-like
+        The folder to tidy (only its own entries; symbolic links are left alone).
+    pattern : re.Pattern
+        Names of the leftovers (a writer's staging folders or temporary files).
+    before : float
+        Seconds since the epoch when the calling writer began: an entry modified since
+        belongs to a writer running now and is kept.
+
+    Returns
+    -------
+    list of str
+        The names removed; entries that cannot be removed are skipped.
+    """
+    import shutil
+
+    removed = []
+    try:
+        entries = list(Path(folder).iterdir())
+    except OSError:
+        return removed
+    for entry in entries:
+        if not pattern.match(entry.name) or entry.is_symlink():
+            continue
+        try:
+            if entry.stat().st_mtime >= before:
+                continue
+            if entry.is_dir():
+                shutil.rmtree(entry)
+            else:
+                entry.unlink()
+        except OSError:
+            continue
+        removed.append(entry.name)
+    return removed
 
 
 def file_sha256(path) -> str:
