@@ -463,20 +463,11 @@ def _compare_manifests(stored: dict, recomputed: dict) -> list:
     return out
 
 
-def _flatten(value, prefix: str = "") -> dict:
-    """Nested JSON objects as ``{"a.b.c": leaf}``."""
-    if isinstance(value, dict):
-        out = {}
-        for key, inner in value.items():
-            out.update(_flatten(inner, f"{prefix}{key}."))
-        return out
-    return {prefix[:-1]: value}
-
-
 def _schema_record(path: Path) -> dict:
-    """A Parquet file's metadata as flat ``{key: text}``: every field's type and
-    key-value metadata (unit, description) and the table's own key-value metadata
-    (the fluxpart JSON flattened, e.g. ``site.utc_offset``)."""
+    """A Parquet file's metadata as a JSON-like dict: ``"<column> type"`` and
+    ``"<column> <key>"`` (unit, description) for every field, and the table's own
+    key-value metadata under its key (the fluxpart JSON parsed, so that
+    :func:`field_differences` names e.g. ``fluxpart.site.utc_offset``)."""
     import pyarrow.parquet as pq
 
     schema = pq.read_schema(path)
@@ -488,13 +479,8 @@ def _schema_record(path: Path) -> dict:
     for key, value in (schema.metadata or {}).items():
         text = value.decode(errors="replace")
         try:
-            parsed = json.loads(text)
+            out[key.decode(errors="replace")] = json.loads(text)
         except ValueError:
-            parsed = None
-        if isinstance(parsed, dict):
-            out.update({name: leaf if isinstance(leaf, str) else json.dumps(leaf, sort_keys=True)
-                        for name, leaf in _flatten(parsed, f"{key.decode()}.").items()})
-        else:
             out[key.decode(errors="replace")] = text
     return out
 
@@ -512,8 +498,9 @@ def metadata_differences(stored: Path, recomputed: Path) -> list[tuple[str, str,
     list of (key, stored, recomputed)
         One entry per differing item, sorted by key: a column's type, unit or
         description, or a key of the table metadata (e.g.
-        ``fluxpart.site.utc_offset``); ``"absent"`` where one side lacks it. Empty
-        when the two files describe their columns and table alike.
+        ``fluxpart.site.utc_offset``); ``"(absent)"`` where one side lacks it; values
+        other than text as JSON. Empty when the two files describe their columns and
+        table alike.
 
     Notes
     -----
@@ -521,9 +508,11 @@ def metadata_differences(stored: Path, recomputed: Path) -> list[tuple[str, str,
     site's UTC offset changed in a table's metadata changes what its numbers mean
     to every reader (``fluxpart.load`` hands them to the modeller).
     """
-    left, right = _schema_record(Path(stored)), _schema_record(Path(recomputed))
-    return [(key, left.get(key, "absent"), right.get(key, "absent"))
-            for key in sorted(set(left) | set(right)) if left.get(key) != right.get(key)]
+    def text(value):
+        return value if isinstance(value, str) else json.dumps(value, sort_keys=True)
+
+    found = field_differences(_schema_record(Path(stored)), _schema_record(Path(recomputed)), "")
+    return [(key, text(old), text(new)) for key, old, new in found]
 
 
 def _environment(manifest: dict) -> tuple[list[str], bool]:
