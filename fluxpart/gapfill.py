@@ -39,6 +39,19 @@ paper (``donors="similar_conditions_only"``) a night gap at Rg = 0 takes every
 record with Rg <= 50 W m-2, twilight included, where photosynthesis is already
 under way: that biases filled night NEE, and annual NEE, low.
 
+One exception (since 0.14.0): the diurnal course of a *day* gap takes the measured
+records of both classes. Its window is symmetric in time (±1 h, ±K days), so around
+sunrise and sunset it reaches as far into darker records as into brighter ones;
+keeping only day records cut off the darker side, and a dawn or dusk gap in a
+week-long outage took up CO2 where the ecosystem was still respiring. Night gaps keep
+night records only: every night record is respiration, whatever its clock time. The
+diurnal course's fill is the mean over its time-of-day offsets of each offset's mean
+over the days, so that an offset measured more often (day records, where the u*
+filter has removed many night records) does not pull the mean towards its side of
+the hour; where every offset is measured equally often this is the plain mean of the
+paper. On 40 generated site-years with a 14–21-day outage of every sensor the two
+changes moved the mean annual NEE error from -5.0 to -3.3 g C m-2 (DEVELOPERS.md).
+
 Radiation window. With separate donors, a day gap whose ±50 W m-2 window would reach
 below the lowest Rg of a day record (the night threshold) takes a window centred on its
 own Rg instead (``rg_window="centred"``, the default since 0.8.0; see
@@ -59,8 +72,9 @@ C for every widened window (m). Driver gaps of a few hours are interpolated
 of all classes are in :data:`QUALITY_NAMES`.
 
 "Within ±tolerance" is inclusive and evaluated as ``x(t) - tol <= x <= x(t) + tol``
-with the bounds in float64. The fill is the mean of the records found; ``std`` is
-their population standard deviation (ddof = 0, so 0 for a single record).
+with the bounds in float64. The fill is the mean of the records found (for the
+diurnal course, the mean of the offsets' means, see Donors); ``std`` is their
+population standard deviation (ddof = 0, so 0 for a single record).
 
 Implementation: the passes loop over steps, window sizes and blocks of neighbouring
 gaps that share one window slice, never over single gaps. In a block, a (gaps ×
@@ -585,7 +599,12 @@ def centred_rg_tolerance(rg, is_night, tolerance, night_threshold) -> np.ndarray
 
 
 def _diurnal_course_pass(values, measured, gaps, half_width_days, per_day, diurnal_records):
-    """Mean, count and std of measured records at the same time of day ±1 h, ±K days."""
+    """Mean, count and std of measured records at the same time of day ±1 h, ±K days.
+
+    The fill is the mean over the time-of-day offsets (-1 h ... +1 h) of each offset's
+    mean over the days, so every offset that has a record weighs alike; ``count`` and
+    ``std`` are over all the records found (population std about their plain mean).
+    """
     mean = np.full(gaps.size, np.nan)
     count = np.zeros(gaps.size, dtype=np.int64)
     spread = np.full(gaps.size, np.nan)
@@ -603,9 +622,15 @@ def _diurnal_course_pass(values, measured, gaps, half_width_days, per_day, diurn
         ok = inside & measured[where]
         n_ok = np.count_nonzero(ok, axis=1)
         picked = np.where(ok, values[where], 0.0)
+        by_offset = (rows.size, days.size, 2 * diurnal_records + 1)
+        offset_count = np.count_nonzero(ok.reshape(by_offset), axis=1)
+        offset_sum = picked.reshape(by_offset).sum(axis=1)
+        offset_mean = np.divide(offset_sum, offset_count, out=np.zeros_like(offset_sum),
+                                where=offset_count > 0)
         with np.errstate(invalid="ignore", divide="ignore"):
-            chunk_mean = picked.sum(axis=1) / n_ok
-            deviation = np.where(ok, picked - chunk_mean[:, None], 0.0)
+            chunk_mean = offset_mean.sum(axis=1) / np.count_nonzero(offset_count, axis=1)
+            plain_mean = picked.sum(axis=1) / n_ok
+            deviation = np.where(ok, picked - plain_mean[:, None], 0.0)
             chunk_spread = np.sqrt((deviation * deviation).sum(axis=1) / n_ok)
         mean[a:a + chunk] = chunk_mean
         count[a:a + chunk] = n_ok
@@ -621,7 +646,8 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
     ``radiation_condition`` is the (driver, tolerance) pair of step 2 or ``None``.
     A pass fills a gap only where it finds at least ``min_donors`` records. With
     ``is_night`` (bool per record), night gaps are filled from night records only
-    and day gaps from day records only; ``None`` lets every record fill every gap.
+    and day gaps from day records only, except that the diurnal course of a day gap
+    takes every measured record; ``None`` lets every record fill every gap.
     ``interpolated`` (bool per record, or ``None``) marks gaps already filled by
     interpolation: they keep their value and are never donors. ``wanted`` (bool per
     record, or ``None`` for all) limits the gaps filled; the others stay unfilled.
@@ -642,13 +668,16 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
     passes = pass_sequence(all_drivers=all_conditions is not None,
                            radiation=radiation_condition is not None,
                            max_window_days=max_window_days, record_days=n / per_day)
-    for members in classes:
+    # the diurnal course of a day gap takes night records too (see the module notes)
+    course_classes = [False] if is_night is None else [False, True]
+    for members, course_from_all in zip(classes, course_classes, strict=True):
         donors = measured & members
         remaining = gaps & members
         if not donors.any() or not remaining.any():
             continue
+        course_donors = measured if course_from_all else donors
         outputs = _fill_class(values, donors, remaining, passes, per_day, diurnal_records,
-                              all_conditions, radiation_condition, min_donors)
+                              all_conditions, radiation_condition, min_donors, course_donors)
         for filled, step, half_width_days, pass_mean, pass_count, pass_spread in outputs:
             value[filled] = pass_mean
             method[filled] = step
@@ -659,7 +688,7 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
 
 
 def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all_conditions,
-                radiation_condition, min_donors):
+                radiation_condition, min_donors, course_donors):
     """Fill the gaps ``remaining`` from the records ``donors``; yield each pass's fills."""
     n = values.size
     remaining = remaining.copy()
@@ -684,8 +713,8 @@ def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all
     for step, half_width_days in passes:
         if step == METHOD_DIURNAL_COURSE:
             gaps = np.flatnonzero(remaining)
-            result = _diurnal_course_pass(values, donors, gaps, half_width_days, per_day,
-                                          diurnal_records)
+            result = _diurnal_course_pass(values, course_donors, gaps, half_width_days,
+                                          per_day, diurnal_records)
         else:
             conditions, usable, available, tables = step_inputs[step]
             gaps = np.flatnonzero(remaining & available)
@@ -789,7 +818,8 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
     donors : {"separate_day_night", "similar_conditions_only"}
         Which measured records may fill a gap. ``"separate_day_night"`` (default):
         night gaps only from night records and day gaps only from day records, as
-        Falge et al. (2001) fill day and night separately. ``"similar_conditions_only"``:
+        Falge et al. (2001) fill day and night separately (the diurnal course of a
+        day gap excepted: it takes both, see the module notes). ``"similar_conditions_only"``:
         any record within the tolerances, the single rule of Reichstein et al. (2005),
         under which twilight records with photosynthesis (Rg a few tens of W m-2)
         fill night gaps and bias night NEE low.

@@ -15,8 +15,9 @@ widening by 7 days per round up to ``max_window_days`` and no further than the
 diurnal window covering the record, full window width reported (2K, or 2K + 1 for
 the diurnal course), population standard deviation, quality A/B/C as in the flow
 chart. With ``is_night`` given, a gap takes donors only from records of its own
-class (night or day; Falge et al. 2001). Short driver gaps (Tair, VPD, Tsoil) are
-interpolated linearly, gap by gap.
+class (night or day; Falge et al. 2001), except the diurnal course of a day gap, which
+takes both; the diurnal course averages the means of its time-of-day offsets. Short
+driver gaps (Tair, VPD, Tsoil) are interpolated linearly, gap by gap.
 """
 
 import numpy as np
@@ -104,11 +105,17 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_condition,
             else:
                 candidates = (t + np.arange(-k, k + 1)[:, None] * per_day
                               + np.arange(-hour_records, hour_records + 1)[None, :]).ravel()
-                candidates = candidates[(candidates >= 0) & (candidates < n)]
-                picked = y[candidates][donor[candidates]]
+                inside = (candidates >= 0) & (candidates < n)
+                offset = np.tile(np.arange(-hour_records, hour_records + 1), 2 * k + 1)[inside]
+                candidates = candidates[inside]
+                # a day gap's diurnal course takes night records too (symmetric window)
+                course_donor = measured if is_night is None or not is_night[t] else donor
+                used = course_donor[candidates]
+                picked, offset = y[candidates][used], offset[used]
                 full_width = 2.0 * k + 1.0
             if picked.size >= min_donors:
-                value[t] = picked.mean()
+                value[t] = picked.mean() if step in (1, 2) else np.mean(
+                    [picked[offset == o].mean() for o in np.unique(offset)])  # offsets alike
                 method[t] = step
                 window[t] = full_width
                 count[t] = picked.size
