@@ -658,6 +658,11 @@ def diagnose(site, frame, outdir, annual_row):
         r = ts[f"reco_{method}"].to_numpy(dtype=float)
         out[f"reco_{method}_night_err"] = np.nansum((r - reco_true)[night]) * scale
         out[f"reco_{method}_day_err"] = np.nansum((r - reco_true)[~night]) * scale
+    # the autotrophic part's day excess over its level in the same day's night records: the
+    # share of day respiration that no night-fitted temperature response of soil can see
+    ra = pd.Series(frame["true_ra"].to_numpy(), index=frame.index)
+    ra_night_level = ra.where(night).groupby(frame.index.normalize()).transform("mean")
+    out["ra_day_excess"] = float(np.nansum((ra - ra_night_level).to_numpy()[~night]) * scale)
     for part in ("random", "gapfill", "gapfill_bias", "gapfill_bias_se", "ustar", "total"):
         col = f"nee_uncertainty_{part}"
         out["sd_" + part] = float(annual_row[col]) if col in annual_row else np.nan
@@ -759,7 +764,8 @@ def print_row(row):
           "{sd_total:.1f}".format(**row))
     print("   Reco error night/day records: nighttime {reco_nighttime_night_err:+.1f} / "
           "{reco_nighttime_day_err:+.1f}; daytime {reco_daytime_night_err:+.1f} / "
-          "{reco_daytime_day_err:+.1f}".format(**row))
+          "{reco_daytime_day_err:+.1f}; true autotrophic day excess over its night level "
+          "{ra_day_excess:+.1f}".format(**row))
     print(f"   check exit {row['check_rc']}; warnings ({len(row['warnings'])}):")
     for w in row["warnings"]:
         print(f"     - {w[:230]}")
