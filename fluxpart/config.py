@@ -125,7 +125,12 @@ class Config:
         Which measured records may fill an NEE gap. ``"separate_day_night"``
         (default): night gaps only from night records and day gaps only from day
         records (Falge et al. 2001, Agric. For. Meteorol. 107:43–69, fill day and
-        night separately); ``"similar_conditions_only"``: any record within the
+        night separately), except that a day gap's mean diurnal course (same time of
+        day ±1 h) takes records of both classes, with its time-of-day offsets
+        weighed alike (since 0.14.0: the symmetric window, cut to its day records,
+        kept only the brighter half at sunrise and sunset and filled outages with
+        too much uptake; outage benchmark mean NEE error −5.0 → −3.3 g C m-2);
+        ``"similar_conditions_only"``: any record within the
         similarity tolerances, the single rule of Reichstein et al. (2005), under
         which twilight records with photosynthesis fill night gaps and bias annual
         NEE low (issue 11: median −17.5 g C m-2 on the demo).
