@@ -111,14 +111,18 @@ from __future__ import annotations
 import argparse
 import dataclasses
 import json
-import os
-import subprocess
-import sys
 import time
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
+from trial_scoring import (  # this folder
+    FLUXES,
+    TRUTH_OF,
+    fluxpart_cli,
+    misses,
+    print_flux_summary,
+)
 
 G_C_PER_UMOL = 12.011e-6  # g C per umol C; standard atomic weight of carbon 12.011 g mol-1
 MG_CO2_PER_UMOL = 44.009e-3  # mg CO2 per umol CO2 (molar mass 44.009 g mol-1 (m))
@@ -127,11 +131,6 @@ PAR_PER_RG = 0.45 * 4.57  # umol J-1: PAR share of Rg (m) x McCree (1972) 4.57 u
 T0_LT = 227.13  # K, Lloyd & Taylor (1994) T0 (-46.02 degC)
 TREF_LT = 283.15  # K, reference temperature 10 degC
 
-FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
-TRUTH_OF = {"nee": "nee", "gpp_nighttime": "gpp", "reco_nighttime": "reco",
-            "gpp_daytime": "gpp", "reco_daytime": "reco"}
-REL_TARGET = {"gpp_nighttime": 5.0, "reco_nighttime": 5.0, "gpp_daytime": 8.0,
-              "reco_daytime": 8.0}
 
 
 @dataclasses.dataclass
@@ -616,14 +615,6 @@ def write_site(site, frame, folder):
 # --------------------------------------------------------------------------- scoring
 
 
-def fluxpart_cli(*args, cwd):
-    env = dict(os.environ)
-    root = str(Path(__file__).resolve().parents[2])
-    env["PYTHONPATH"] = root + os.pathsep + env.get("PYTHONPATH", "")
-    cmd = [sys.executable, "-m", "fluxpart", *args]
-    return subprocess.run(cmd, cwd=cwd, env=env, capture_output=True, text=True)
-
-
 def diagnose(site, frame, outdir, annual_row):
     """Split the annual NEE error (g C m-2) into its sources, from timeseries.parquet."""
     ts = pd.read_parquet(outdir / "timeseries.parquet")
@@ -724,21 +715,6 @@ def _season_months(code, month_index):
     return False
 
 
-def misses(row):
-    out = []
-    for f in FLUXES:
-        if not row[f + "_in"]:
-            out.append(f"{f} outside 95 % interval")
-    if abs(row["nee_err"]) > 15:
-        out.append("|NEE error| > 15")
-    for f, lim in REL_TARGET.items():
-        if abs(row[f + "_rel"]) > lim:
-            out.append(f"{f} {row[f + '_rel']:+.1f} %")
-    if abs(row["ustar_rel"]) > 20:
-        out.append(f"u* {row['ustar_rel']:+.0f} %")
-    return out
-
-
 def print_row(row):
     print(f"\n== {row['site_year']} ({row['step']} min; records {row['records']} / truth "
           f"{row['records_truth']}; complete {row['complete']}; measured "
@@ -786,22 +762,7 @@ def summary(rows):
               f"{r['gpp_daytime_rel']:+7.1f} {yn('gpp_daytime'):>3s} "
               f"{r['reco_daytime_rel']:+7.1f} {yn('reco_daytime'):>3s} "
               f"{r['ustar_found']:6.3f} {r['ustar_planted']:6.3f} {r['ustar_rel']:+5.0f}")
-    n = len(rows)
-    print(f"\n{n} site-years")
-    for f in FLUXES:
-        cov = np.mean([r[f + "_in"] for r in rows])
-        ratio = np.median([abs(r[f + "_err"]) / (r[f + "_halfwidth"] / 1.96) for r in rows])
-        print(f"  {f:15s} coverage {100 * cov:5.1f} %  median |err| "
-              f"{np.median([abs(r[f + '_err']) for r in rows]):6.1f} g C m-2  median |rel| "
-              f"{np.median([abs(r[f + '_rel']) for r in rows]):5.1f} %  median |err|/sigma "
-              f"{ratio:.2f}")
-    errs = np.abs([r["nee_err"] for r in rows])
-    print(f"  |NEE err| median {np.median(errs):.1f}, worst {errs.max():.1f} g C m-2; "
-          f"within 15: {int((errs <= 15).sum())} of {n}; within 5: {int((errs <= 5).sum())}")
-    for f, lim in REL_TARGET.items():
-        print(f"  {f} within {lim:.0f} %: {sum(abs(r[f + '_rel']) <= lim for r in rows)} of {n}")
-    print(f"  u* within 20 %: {sum(abs(r['ustar_rel']) <= 20 for r in rows)} of {n}; median "
-          f"{np.median([r['ustar_rel'] for r in rows]):+.1f} %")
+    print_flux_summary(rows)
 
 
 def main(argv=None):

@@ -99,25 +99,24 @@ from __future__ import annotations
 import argparse
 import dataclasses
 import json
-import os
-import subprocess
-import sys
 import time
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
+from trial_scoring import (  # this folder
+    FLUXES,
+    TRUTH_OF,
+    fluxpart_cli,
+    misses,
+    print_flux_summary,
+)
 
 G_C_PER_UMOL = 12.011e-6  # g C per umol C; standard atomic weight of carbon 12.011 g mol-1
 R_GAS = 8.314  # J mol-1 K-1, molar gas constant (CODATA (m))
 KAPPA = 0.41  # von Karman constant (m)
 PAR_PER_RG = 2.05  # umol J-1: 0.45 PAR share x 4.57 umol J-1 (McCree 1972 (m))
 
-FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
-TRUTH_OF = {"nee": "nee", "gpp_nighttime": "gpp", "reco_nighttime": "reco",
-            "gpp_daytime": "gpp", "reco_daytime": "reco"}
-REL_TARGET = {"gpp_nighttime": 5.0, "reco_nighttime": 5.0, "gpp_daytime": 8.0,
-              "reco_daytime": 8.0}
 
 
 @dataclasses.dataclass
@@ -596,12 +595,6 @@ def write_run(site, frame, label, first, last, folder):
 
 # --------------------------------------------------------------------------- scoring
 
-def fluxpart_cli(*args, cwd):
-    env = dict(os.environ)
-    cmd = [sys.executable, "-m", "fluxpart", *args]
-    return subprocess.run(cmd, cwd=cwd, env=env, capture_output=True, text=True)
-
-
 def truth_sums(part, step, key):
     """Truth in g C m-2 summed per calendar year / month of interval starts."""
     scale = step * 60 * G_C_PER_UMOL
@@ -663,21 +656,6 @@ def score_run(site, label, part, outdir, check):
     return rows
 
 
-def misses(row):
-    out = []
-    for f in FLUXES:
-        if not row[f + "_in"]:
-            out.append(f"{f} outside 95 % interval")
-    if abs(row["nee_err"]) > 15:
-        out.append("|NEE error| > 15")
-    for f, lim in REL_TARGET.items():
-        if abs(row[f + "_rel"]) > lim:
-            out.append(f"{f} {row[f + '_rel']:+.1f} %")
-    if abs(row["ustar_rel"]) > 20:
-        out.append(f"u* {row['ustar_rel']:+.0f} %")
-    return out
-
-
 def print_row(row):
     print(f"\n== {row['site_year']} ({row['year']}; records {row['records']} / truth "
           f"{row['records_truth']}; complete {row['complete']}; measured "
@@ -714,19 +692,7 @@ def summary(rows):
               f"{r['reco_daytime_rel']:+7.1f} {yn('reco_daytime'):>3s} "
               f"{r['ustar_rel']:+5.0f} {r['months_in']:>3d}/{r['months']:<3d} "
               f"{len(r['warnings']):>4d}")
-    n = len(rows)
-    print(f"\n{n} site-years")
-    for f in FLUXES:
-        cov = np.mean([r[f + "_in"] for r in rows])
-        ratio = np.median([abs(r[f + "_err"]) / (r[f + "_halfwidth"] / 1.96) for r in rows])
-        print(f"  {f:15s} coverage {100 * cov:5.1f} %  median |err| {np.median([abs(r[f + '_err']) for r in rows]):6.1f} g C m-2  "  # noqa: E501
-              f"median |rel| {np.median([abs(r[f + '_rel']) for r in rows]):5.1f} %  "
-              f"median |err|/sigma {ratio:.2f}")
-    print(f"  |NEE err| > 15: {sum(abs(r['nee_err']) > 15 for r in rows)} of {n}")
-    for f, lim in REL_TARGET.items():
-        print(f"  {f} within {lim:.0f} %: {sum(abs(r[f + '_rel']) <= lim for r in rows)} of {n}")
-    print(f"  u* within 20 %: {sum(abs(r['ustar_rel']) <= 20 for r in rows)} of {n}; median "
-          f"{np.median([r['ustar_rel'] for r in rows]):+.1f} %")
+    print_flux_summary(rows)
     mi = sum(r["months_in"] for r in rows)
     mt = sum(r["months"] for r in rows)
     print(f"  monthly NEE within +-1.96 sigma: {mi} of {mt} ({100 * mi / max(mt, 1):.1f} %)")

@@ -1,0 +1,68 @@
+"""Scoring shared by the independent known-truth trials (``trial_third.py``, ``trial_fourth.py``).
+
+Only the scoring is shared: each trial keeps its own weather, flux physics and file layouts,
+so that the trials stay independent of each other and of ``fluxpart.scenarios``.
+
+The targets are those of issue 11: a 95 % interval that holds the truth, |annual NEE error|
+<= 15 g C m-2, nighttime GPP and Reco within 5 %, daytime within 8 %, the u* threshold within
+20 % of the planted one.
+"""
+from __future__ import annotations
+
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+import numpy as np
+
+FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
+TRUTH_OF = {"nee": "nee", "gpp_nighttime": "gpp", "reco_nighttime": "reco",
+            "gpp_daytime": "gpp", "reco_daytime": "reco"}
+REL_TARGET = {"gpp_nighttime": 5.0, "reco_nighttime": 5.0, "gpp_daytime": 8.0,
+              "reco_daytime": 8.0}
+
+
+def fluxpart_cli(*args, cwd):
+    """Run ``python -m fluxpart ARGS`` of this repository in `cwd` as a user would."""
+    env = dict(os.environ)
+    root = str(Path(__file__).resolve().parents[2])
+    env["PYTHONPATH"] = root + os.pathsep + env.get("PYTHONPATH", "")
+    cmd = [sys.executable, "-m", "fluxpart", *args]
+    return subprocess.run(cmd, cwd=cwd, env=env, capture_output=True, text=True)
+
+
+def misses(row):
+    """The targets a scored row (keys ``<flux>_in``, ``_rel``, ``nee_err``, ``ustar_rel``) misses."""
+    out = []
+    for f in FLUXES:
+        if not row[f + "_in"]:
+            out.append(f"{f} outside 95 % interval")
+    if abs(row["nee_err"]) > 15:
+        out.append("|NEE error| > 15")
+    for f, lim in REL_TARGET.items():
+        if abs(row[f + "_rel"]) > lim:
+            out.append(f"{f} {row[f + '_rel']:+.1f} %")
+    if abs(row["ustar_rel"]) > 20:
+        out.append(f"u* {row['ustar_rel']:+.0f} %")
+    return out
+
+
+def print_flux_summary(rows):
+    """Print coverage, errors and within-target counts per flux over the scored rows."""
+    n = len(rows)
+    print(f"\n{n} site-years")
+    for f in FLUXES:
+        cov = np.mean([r[f + "_in"] for r in rows])
+        ratio = np.median([abs(r[f + "_err"]) / (r[f + "_halfwidth"] / 1.96) for r in rows])
+        print(f"  {f:15s} coverage {100 * cov:5.1f} %  median |err| "
+              f"{np.median([abs(r[f + '_err']) for r in rows]):6.1f} g C m-2  median |rel| "
+              f"{np.median([abs(r[f + '_rel']) for r in rows]):5.1f} %  median |err|/sigma "
+              f"{ratio:.2f}")
+    errs = np.abs([r["nee_err"] for r in rows])
+    print(f"  |NEE err| median {np.median(errs):.1f}, worst {errs.max():.1f} g C m-2; "
+          f"within 15: {int((errs <= 15).sum())} of {n}; within 5: {int((errs <= 5).sum())}")
+    for f, lim in REL_TARGET.items():
+        print(f"  {f} within {lim:.0f} %: {sum(abs(r[f + '_rel']) <= lim for r in rows)} of {n}")
+    print(f"  u* within 20 %: {sum(abs(r['ustar_rel']) <= 20 for r in rows)} of {n}; median "
+          f"{np.median([r['ustar_rel'] for r in rows]):+.1f} %")
