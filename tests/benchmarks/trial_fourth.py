@@ -119,9 +119,10 @@ import pandas as pd
 from trial_scoring import (  # this folder
     FLUXES,
     TRUTH_OF,
-    fluxpart_cli,
+    check_and_run,
     misses,
     print_flux_summary,
+    save_scores,
 )
 
 G_C_PER_UMOL = 12.011e-6  # g C per umol C; standard atomic weight of carbon 12.011 g mol-1
@@ -782,27 +783,19 @@ def main(argv=None):
         folder.mkdir(exist_ok=True)
         cfg = write_site(site, frame, folder)
         frame.to_parquet(folder / "truth.parquet")
-        check = fluxpart_cli("check", cfg.name, cwd=folder)
-        lines = check.stdout.splitlines()
-        head = [i for i, ln in enumerate(lines) if ln.startswith("problems found")]
-        problems = lines[head[0]:] if head else check.stderr.splitlines()
-        print(f"\n## {site.key} {site.name} {site.year}: check exit {check.returncode}")
-        for ln in problems[:12]:
-            print(f"   check: {ln[:200]}")
         outdir = folder / "out"
         t_run = time.perf_counter()
-        run = fluxpart_cli("run", cfg.name, "--out", outdir.name, "--quiet", cwd=folder)
-        print(f"   run {time.perf_counter() - t_run:.0f} s, exit {run.returncode}")
-        if run.returncode != 0:
-            print(f"   RUN FAILED (exit {run.returncode}): {run.stderr.strip()[-800:]}")
+        check, run = check_and_run(cfg.name, folder, outdir.name,
+                                   f"{site.key} {site.name} {site.year}")
+        print(f"   run {time.perf_counter() - t_run:.0f} s")
+        if run is None:
             continue
         row = score(site, frame, outdir, check)
         print_row(row)
         rows.append(row)
     if rows:
         summary(rows)
-        keep = [{k: v for k, v in r.items() if k != "warnings"} for r in rows]
-        pd.DataFrame(keep).to_csv(args.out / "scores.csv", index=False)
+        save_scores(rows, args.out)
     print(f"\n{time.perf_counter() - tic:.0f} s")
 
 

@@ -66,3 +66,32 @@ def print_flux_summary(rows):
         print(f"  {f} within {lim:.0f} %: {sum(abs(r[f + '_rel']) <= lim for r in rows)} of {n}")
     print(f"  u* within 20 %: {sum(abs(r['ustar_rel']) <= 20 for r in rows)} of {n}; median "
           f"{np.median([r['ustar_rel'] for r in rows]):+.1f} %")
+
+
+def check_and_run(config_name, folder, out_name, title):
+    """``fluxpart check`` then ``fluxpart run`` of a written site-year, as a user would.
+
+    Prints the check's exit code and first problems under `title`; returns the check's
+    completed process and the run's, or ``None`` for the run where it failed.
+    """
+    check = fluxpart_cli("check", config_name, cwd=folder)
+    lines = check.stdout.splitlines()
+    head = [i for i, ln in enumerate(lines) if ln.startswith("problems found")]
+    problems = lines[head[0]:] if head else check.stderr.splitlines()
+    problems = problems[:problems.index("")] if "" in problems else problems
+    print(f"\n## {title}: check exit {check.returncode}")
+    for ln in problems[:12]:
+        print(f"   check: {ln[:200]}")
+    run = fluxpart_cli("run", config_name, "--out", out_name, "--quiet", cwd=folder)
+    if run.returncode != 0:
+        print(f"   RUN FAILED (exit {run.returncode}): {run.stderr.strip()[-800:]}")
+        return check, None
+    return check, run
+
+
+def save_scores(rows, out):
+    """Write the scored rows (without their warnings) to ``out/scores.csv``."""
+    import pandas as pd
+
+    keep = [{k: v for k, v in r.items() if k != "warnings"} for r in rows]
+    pd.DataFrame(keep).to_csv(Path(out) / "scores.csv", index=False)

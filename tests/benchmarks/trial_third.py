@@ -107,9 +107,10 @@ import pandas as pd
 from trial_scoring import (  # this folder
     FLUXES,
     TRUTH_OF,
-    fluxpart_cli,
+    check_and_run,
     misses,
     print_flux_summary,
+    save_scores,
 )
 
 G_C_PER_UMOL = 12.011e-6  # g C per umol C; standard atomic weight of carbon 12.011 g mol-1
@@ -717,18 +718,9 @@ def main(argv=None):
         for label, first, last in labels:
             cfg, part = write_run(site, frame, label, first, last, folder)
             part.to_parquet(folder / f"truth_{label}.parquet")
-            check = fluxpart_cli("check", cfg.name, cwd=folder)
-            lines = check.stdout.splitlines()
-            head = [i for i, ln in enumerate(lines) if ln.startswith("problems found")]
-            problems = lines[head[0]:] if head else check.stderr.splitlines()
-            problems = problems[:problems.index("")] if "" in problems else problems
-            print(f"\n## {label} {site.name}: check exit {check.returncode}")
-            for ln in problems[:12]:
-                print(f"   check: {ln[:200]}")
             outdir = folder / f"out_{label}"
-            run = fluxpart_cli("run", cfg.name, "--out", outdir.name, "--quiet", cwd=folder)
-            if run.returncode != 0:
-                print(f"   RUN FAILED (exit {run.returncode}): {run.stderr.strip()[-600:]}")
+            check, run = check_and_run(cfg.name, folder, outdir.name, f"{label} {site.name}")
+            if run is None:
                 continue
             for row in score_run(site, label, part, outdir, check):
                 if site.key == "A":
@@ -737,8 +729,7 @@ def main(argv=None):
                 rows.append(row)
     if rows:
         summary(rows)
-        keep = [{k: v for k, v in r.items() if k != "warnings"} for r in rows]
-        pd.DataFrame(keep).to_csv(args.out / "scores.csv", index=False)
+        save_scores(rows, args.out)
     print(f"\n{time.perf_counter() - tic:.0f} s")
 
 
