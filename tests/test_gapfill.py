@@ -262,6 +262,39 @@ def test_diurnal_course_same_day_by_hand():
     assert (out["method"].drop(out.index[5]) == 0).all()
 
 
+def test_day_gap_diurnal_course_takes_both_classes_and_weighs_offsets_alike():
+    """At sunrise a day gap's ±1 h window reaches as far into night records as into day.
+
+    A centred moving average preserves a straight trend (common practice of smoothing):
+    cutting the window to its day half fills the gap from brighter records only. Here
+    the records before the gap are night (respiration, +2), those after it day (-5);
+    the fill is the mean of the four offsets' means over the days, (2 + 2 - 5 - 5) / 4 =
+    -1.5, where the plain mean of the five records, offset +2 measured on two days, would
+    be -2.2.
+    """
+    n = 3 * 48
+    values = np.full(n, np.nan)
+    gap = 48 + 12                                           # day 1; no record that day
+    values[gap - 2 - 48], values[gap - 1 + 48] = 2.0, 2.0  # night, days 0 and 2
+    values[gap + 1 - 48] = -5.0                             # day, day 0
+    values[[gap + 2 - 48, gap + 2 + 48]] = -5.0             # day, days 0 and 2
+    is_night = np.zeros(n, dtype=bool)
+    is_night[[gap - 2 - 48, gap - 1 + 48]] = True
+    out = fill_marginal(values, _drivers(n), _index(n), is_night=is_night)
+    row = out.iloc[gap]
+    assert row["value"] == pytest.approx(-1.5)
+    assert (row["method"], row["count"], row["window_days"]) == (3, 5, 3.0)
+    # a night gap keeps night records only: every night record is respiration
+    night_gap = 48 + 30
+    values2 = np.full(n, np.nan)
+    values2[[night_gap - 1, night_gap + 1]] = [3.0, -4.0]
+    is_night2 = np.zeros(n, dtype=bool)
+    is_night2[[night_gap - 1, night_gap]] = True
+    out2 = fill_marginal(values2, _drivers(n), _index(n), is_night=is_night2,
+                         min_donors=1)
+    assert out2["value"].iloc[night_gap] == pytest.approx(3.0)
+
+
 def test_diurnal_course_hourly_takes_one_record_each_side():
     """Hourly data: ±1 h is ±1 record."""
     values = np.array([1.0, 2.0, 4.0, np.nan, 8.0, 16.0])
