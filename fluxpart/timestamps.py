@@ -414,8 +414,9 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     ------
     TimestampError
         A stamp does not parse (first one named with its line), stamps carry a UTC
-        offset while a `time_zone` is also given, or a stamp falls in the hour
-        skipped when clocks go forward.
+        offset while a `time_zone` is also given, a stamp falls in the hour
+        skipped when clocks go forward, or the format pairs AM/PM (``%p``) with a
+        24-hour ``%H``.
 
     Notes
     -----
@@ -430,6 +431,12 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     the repeated hour is read as daylight-saving time. The skipped spring hour
     holds no stamps, so it becomes a gap of inserted records.
     """
+    if "%p" in time_format and "%H" in time_format and "%I" not in time_format:
+        # strptime applies AM/PM to %I only: under %H "01:00 PM" is read as 01:00
+        raise TimestampError(
+            f"[input] time_format = {setting_text(time_format)} cannot be used: %p (AM/PM) "
+            "applies only to a 12-hour %I, so with %H every PM stamp would be read as AM; "
+            f"write time_format = {setting_text(time_format.replace('%H', '%I'))}")
     if time_format.endswith("Z") and not time_format.endswith("%Z") and time_zone is None:
         time_format = time_format[:-1] + "%z"       # "...%SZ": the Z of UTC, not a letter
     with_offset = _carries_offset(text, time_format)

@@ -249,3 +249,19 @@ def test_twelve_hour_clock_and_two_digit_year_are_named(stamps, time_format, sai
     fixed = said.split("time_format = ")[1].strip('"')
     assert list(_parse(stamps, fixed, columns=("TIMESTAMP",))) == [
         pd.Timestamp(2021, 1, 1, 0, 30), pd.Timestamp(2021, 1, 1, 1, 0)]
+
+
+def test_am_pm_with_a_24_hour_field_is_refused():
+    """%p beside %H: Python's strptime applies AM/PM only to the 12-hour %I (Python
+    documentation of ``time.strftime``, note 1: "the %p directive only affects the output
+    hour field if the %I directive is used to parse the hour"), so "01:00 PM" would read
+    as 01:00. Refused naming the setting and
+    the fix, not reported as repeated stamps (review, round five)."""
+    stamps = ["01/01/2021 12:30 AM", "01/01/2021 01:00 AM", "01/01/2021 01:00 PM"]
+    with pytest.raises(TimestampError, match=r'time_format = "%m/%d/%Y %H:%M %p" cannot be '
+                       r'used: %p \(AM/PM\) applies only to a 12-hour %I.*'
+                       r'time_format = "%m/%d/%Y %I:%M %p"'):
+        _parse(stamps, "%m/%d/%Y %H:%M %p", columns=("stamp",))
+    fixed = _parse(stamps, "%m/%d/%Y %I:%M %p", columns=("stamp",))
+    assert list(fixed) == [datetime(2021, 1, 1, 0, 30), datetime(2021, 1, 1, 1, 0),
+                           datetime(2021, 1, 1, 13, 0)]
