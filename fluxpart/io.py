@@ -976,6 +976,13 @@ def _resolve_paths(value, folder: Path) -> tuple:
             if not matches:
                 raise ConfigError(f"[input] path = {setting_text(item)} matches no file in "
                                   f"{str(Path(pattern).parent)!r}")
+            configs = [p for p in matches if p.suffix.lower() == ".toml"]
+            if configs:
+                # a pattern as wide as "*" also takes the site config (and its neighbours)
+                raise ConfigError(f"[input] path = {setting_text(item)} matches the TOML file "
+                                  f"{str(configs[0])!r} ({len(configs)} in all), which is a "
+                                  "config, not a data table: narrow the pattern to the data "
+                                  "files (e.g. \"*.csv\")")
             found.extend(matches)
         else:
             found.append(folder / item)

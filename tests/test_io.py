@@ -928,6 +928,18 @@ def test_glob_and_list_in_site_config(tmp_path):
         read_site_config(_site_toml(tmp_path, csv="none_*.csv"))
 
 
+def test_glob_matching_the_site_config_is_refused_naming_it(tmp_path):
+    """A pattern as wide as "*" also takes the site config beside the data: refused naming
+    the TOML file and the fix. Before, the first TOML was read as a table and the error said
+    the time column was not in it ("the file has columns: '[site]'"; review, round five)."""
+    _write(tmp_path / "tower.csv", _records(periods=200), marks="end")
+    with pytest.raises(ConfigError, match=r'\[input\] path = "\*" matches the TOML file '
+                       r"'.*site\.toml' \(1 in all\), which is a config, not a data table: "
+                       r'narrow the pattern to the data files'):
+        read_site_config(_site_toml(tmp_path, csv="*"))
+    assert read_site_config(_site_toml(tmp_path, csv="*.csv")).input_paths[0].name == "tower.csv"
+
+
 @pytest.mark.parametrize("content", ["", "\n\n", "stamp,co2_flux,sw_in,t_air,vpd_air,u_fric\n"])
 def test_empty_file_among_several_is_skipped_and_named(tmp_path, content):
     """A 0-byte, blank or header-only file in a glob (a logger file opened as the power
