@@ -1087,7 +1087,8 @@ def _check_missing(value) -> tuple:
                           "e.g. missing = [-9999, \"NA\"]")
     for code in value:
         if isinstance(code, bool) or not isinstance(code, (str, int, float)):
-            raise ConfigError(f"[input] missing: code {code!r} must be a number or a string")
+            raise ConfigError(f"[input] missing: code {setting_text(code)} must be a number "
+                              "or a string, e.g. missing = [-9999, \"NA\"]")
     return tuple(value)
 
 

@@ -153,6 +153,20 @@ def test_unit_conversion(tmp_path):
     assert report.units == {"nee": "mg CO2 m-2 s-1", "tair": "K", "vpd": "kPa"}
 
 
+@pytest.mark.parametrize("codes, shown", [("[-9999, true]", "true"), ("[[-9999]]", "[-9999]"),
+                                           ("[{ a = 1 }]", "a table {a = 1}")])
+def test_a_missing_code_of_another_type_is_shown_as_toml(tmp_path, codes, shown):
+    """A code that is neither number nor text is named as the user wrote it in TOML (true,
+    not Python's True; TOML v1.0.0 spells booleans in lower case); review, round five."""
+    path = _site_toml(tmp_path)
+    path.write_text(path.read_text().replace('missing = [-9999, "NA"]', f"missing = {codes}"))
+    with pytest.raises(ConfigError) as error:
+        read_site_config(path)
+    assert str(error.value).startswith(f"[input] missing: code {shown}")
+    assert "must be a number or a string, e.g. missing = [-9999, \"NA\"]" in str(error.value)
+    assert "True" not in str(error.value)
+
+
 def test_missing_codes_become_nan(tmp_path):
     """Numeric codes (within tolerance), string codes, 'NaN' and empty cells become NaN."""
     records = _records().astype(object)
