@@ -1743,8 +1743,13 @@ def _empty_required_message(name: str, mapping: dict, derived: list) -> str:
                   else f"column {mapping[key]!r}")
         source = f"{column} has no value at all (every cell empty or a missing code)"
         fix = f"[input.columns] {key}"
+    derive = ""
+    if name == "vpd" and "vpd" not in derived and "rh" in mapping:
+        # a VPD column the logger never filled beside a working RH probe
+        derive = (f", or remove [input.columns] vpd to derive VPD from rh ({mapping['rh']!r}) "
+                  f"and tair ({mapping['tair']!r})")
     return (f"{name} ({VARIABLES[name].description}): {source}; every stage needs measured "
-            f"records of it: check {fix} and [input] missing")
+            f"records of it: check {fix} and [input] missing{derive}")
 
 
 def _describe_mapping(mapping: dict, flag_columns: tuple) -> str:

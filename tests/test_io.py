@@ -264,6 +264,26 @@ def test_vpd_derived_from_rh(tmp_path):
     assert list(frame.columns) == ["nee", "rg", "tair", "vpd", "ustar", "rh"]
 
 
+def test_empty_vpd_column_beside_rh_names_the_derivation(tmp_path):
+    """A mapped VPD column without any value (a probe never installed) beside a working RH:
+    the error names the fix that derives VPD from RH and air temperature, which the reader
+    does where vpd is not mapped (Magnus form, reference/units.toml); the values derived
+    then are those of the file without the column (review, round five)."""
+    records = _records()
+    records["vpd_air"] = -9999
+    path = _write(tmp_path / "t.csv", records)
+    with pytest.raises(MissingColumnError, match=r"vpd .*column 'vpd_air' has no value at all.*"
+                       r"or remove \[input.columns\] vpd to derive VPD from rh \('rel_hum'\) "
+                       r"and tair \('t_air'\)"):
+        _read(path, columns=dict(MAPPING) | {"rh": "rel_hum"}, missing=[-9999])
+    with pytest.raises(MissingColumnError) as alone:
+        _read(path, missing=[-9999])
+    assert "derive" not in str(alone.value)
+    mapping = {k: v for k, v in MAPPING.items() if k != "vpd"} | {"rh": "rel_hum"}
+    frame, _ = _read(path, columns=mapping, missing=[-9999])
+    np.testing.assert_allclose(frame["vpd"], vpd_from_rh(records["rel_hum"], records["t_air"]))
+
+
 def test_rh_as_fraction_declared(tmp_path):
     """RH given as a fraction with its unit declared becomes percent."""
     records = _records()
