@@ -76,9 +76,18 @@ def _format_annual(annual) -> str:
     if "net_uptake_t_co2_per_ha" in annual.columns:
         lines += ["", "Net uptake [t CO2 ha-1 per year; positive = uptake]:"]
         for year, row in annual.iterrows():
+            partial = ""
+            if not row.get("complete", True) and row.get("records_expected", 0) > 0:
+                # the sum of the records held, not scaled up: no rate per year
+                if row["records"] < row["records_expected"]:
+                    months = 12.0 * row["records"] / row["records_expected"]
+                    partial = f"; partial year, {months:.1f} months: not an annual total"
+                else:
+                    partial = (f"; {int(row.get('records_unfilled', 0))} records unfilled: "
+                               "not an annual total")
             lines.append(f"  {year}: {row['net_uptake_t_co2_per_ha']:.2f} ± "
                          f"{row['net_uptake_t_co2_per_ha_uncertainty']:.2f} (1 sigma; "
-                         f"u* threshold {row['ustar_threshold']:.3f} m s-1)")
+                         f"u* threshold {row['ustar_threshold']:.3f} m s-1{partial})")
     return "\n".join(lines)
 
 
