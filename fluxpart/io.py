@@ -170,7 +170,9 @@ class ReadReport:
     stamp_conversions : dict
         What was done to stamps: ``hour_24`` (read as midnight of the next day),
         ``utc_offset`` (converted from stamps carrying an offset), ``daylight_saving``
-        (moved from civil to standard time), ``time_zone`` (the zone, if any).
+        (moved from civil to standard time), ``time_zone`` (the zone, if any);
+        ``rounded_to_minute`` and ``date_only`` (midnight written as the date alone)
+        only where they happened.
     nonfinite_cells : dict
         Canonical name -> cells holding an infinity or a number of magnitude
         :data:`ABSURD_MAGNITUDE` or more, read as missing.
@@ -1511,7 +1513,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                         "daylight_saving": parsed.daylight_saving,
                         # only where it happened: earlier manifests have no such key
                         **({"rounded_to_minute": parsed.rounded_to_minute}
-                           if parsed.rounded_to_minute else {})},
+                           if parsed.rounded_to_minute else {}),
+                        **({"date_only": parsed.date_only} if parsed.date_only else {})},
     }
 
 
@@ -1941,6 +1944,9 @@ def _conversion_text(conversions: dict) -> str:
     if conversions.get("rounded_to_minute"):
         parts.append(f"{conversions['rounded_to_minute']} stamp(s) within seconds of a whole "
                      "minute rounded to it")
+    if conversions.get("date_only"):
+        parts.append(f"{conversions['date_only']} stamp(s) written as the date alone read "
+                     "as midnight")
     if conversions.get("time_zone"):
         parts.append(f"civil time of {conversions['time_zone']}: "
                      f"{conversions.get('daylight_saving', 0)} daylight-saving stamp(s) moved "

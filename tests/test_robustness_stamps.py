@@ -265,3 +265,24 @@ def test_am_pm_with_a_24_hour_field_is_refused():
     fixed = _parse(stamps, "%m/%d/%Y %I:%M %p", columns=("stamp",))
     assert list(fixed) == [datetime(2021, 1, 1, 0, 30), datetime(2021, 1, 1, 1, 0),
                            datetime(2021, 1, 1, 13, 0)]
+
+
+def test_midnight_written_as_the_date_alone_is_read_as_midnight():
+    """R's ``as.character`` of date-times (R 4.3.0 NEWS (m): it drops a zero time of day
+    element by element) and some spreadsheet exports write
+    00:00 as the date alone ("2021-01-02" between "2021-01-01 23:30" and
+    "2021-01-02 00:30"). Read as midnight and counted; the calendar is Python's datetime.
+    A stamp with a cut time, an empty stamp, or a file of dates only stays an error."""
+    truth = [datetime(2021, 1, 1, 23, 0) + timedelta(minutes=30 * k) for k in range(5)]
+    text = [s.strftime("%Y-%m-%d") if s.hour == 0 and s.minute == 0
+            else s.strftime("%Y-%m-%d %H:%M") for s in truth]
+    assert text[2] == "2021-01-02"
+    series = pd.Series(text)
+    parsed = parse_stamps(series, "%Y-%m-%d %H:%M", time_columns=("stamp",), source="t.csv",
+                          lines=np.arange(2, 7))
+    assert list(parsed.stamps) == truth and parsed.date_only == 1
+    for bad in ("", "2021-01-02 00"):
+        with pytest.raises(TimestampError, match=r"line 4 of 't.dat' has stamp"):
+            _parse(text[:2] + [bad] + text[3:], "%Y-%m-%d %H:%M", columns=("stamp",))
+    with pytest.raises(TimestampError, match=r"5 stamp\(s\) fail to parse"):
+        _parse([s.strftime("%Y-%m-%d") for s in truth], "%Y-%m-%d %H:%M", columns=("stamp",))
