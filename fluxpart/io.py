@@ -945,6 +945,22 @@ def _check_keys(table: dict, valid, where: str, spell: str) -> None:
             if where == "site config: top-level table" and key in ("columns", "units"):
                 raise ConfigError(f"site config: the table [{key}] belongs under [input]: "
                                   f"write it as [input.{key}]")
+            if where == "site config: top-level table" and not isinstance(table[key], dict):
+                # a key written above the first [table] header belongs to no table
+                from dataclasses import fields
+
+                from .config import Config
+
+                settings = tuple(f.name for f in fields(Config))
+                owner = next((name for name, keys in (("site", _SITE_KEYS),
+                                                      ("input", _INPUT_KEYS),
+                                                      ("processing", settings))
+                              if key in keys), None)
+                move = (f"move it under [{owner}]" if owner else
+                        "move it under the table it belongs to ([site], [input] or "
+                        "[processing])")
+                raise ConfigError(f"site config: {key} = {setting_text(table[key])} stands "
+                                  f"above the first [table] header, outside any table: {move}")
             if isinstance(table[key], dict) and where.startswith("[") and spell == "{key}":
                 parent = where[1:-1]
                 tables = [v for v in valid if v in ("columns", "units")] or list(valid)

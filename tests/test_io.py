@@ -407,6 +407,24 @@ def test_unknown_keys_suggest_nearest(tmp_path, where, text, pattern):
         read_site_config(path)
 
 
+@pytest.mark.parametrize(("line", "owner"), [("latitude = -41.3", "[site]"),
+                                             ("path = \"tower.csv\"", "[input]"),
+                                             ("seed = 3", "[processing]"),
+                                             ("lattitude = 1", "the table it belongs to")])
+def test_key_above_the_first_table_is_named_with_its_table(tmp_path, line, owner):
+    """A key written above the first [table] header belongs to no table (TOML v1.0.0,
+    "Table": keys before the first header are in the root table). It was reported as an
+    unknown "top-level table [latitude]"; now the key, its value and the table it belongs
+    to are named (review, round five)."""
+    path = _site_toml(tmp_path)
+    path.write_text(line + "\n" + path.read_text())
+    key = line.split(" = ")[0]
+    with pytest.raises(ConfigError, match=rf"^site config: {key} = .* stands above the first "
+                       rf"\[table\] header, outside any table: move it under "
+                       + re.escape(owner)):
+        read_site_config(path)
+
+
 def test_site_latitude_out_of_range(tmp_path):
     """A latitude beyond ±90 is a ConfigError naming [site] latitude."""
     path = _site_toml(tmp_path)
