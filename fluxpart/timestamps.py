@@ -509,6 +509,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     f"[input] rows_after_header = {skip}")
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
+        elif "%Z" in time_format and re.search(r"\s[A-Za-z]{2,6}$", text.iloc[first]):
+            # %Z reads UTC, GMT and zone names of the time-zone database (CET, EST), not
+            # summer-time abbreviations (CEST, BST, PDT), several of which are ambiguous
+            hint = (f"; the zone abbreviation {text.iloc[first].split()[-1]!r} is not read "
+                    "(only UTC, GMT and time-zone database names such as CET): write the "
+                    "stamps with a numeric offset (+02:00, %z), or without the abbreviation "
+                    "and with [input] time_zone = \"Area/City\"")
         elif _numeric_clock(text):
             hint = "; " + _numeric_clock(text)
         elif _other_format(text.iloc[first], time_format):

@@ -286,3 +286,18 @@ def test_midnight_written_as_the_date_alone_is_read_as_midnight():
             _parse(text[:2] + [bad] + text[3:], "%Y-%m-%d %H:%M", columns=("stamp",))
     with pytest.raises(TimestampError, match=r"5 stamp\(s\) fail to parse"):
         _parse([s.strftime("%Y-%m-%d") for s in truth], "%Y-%m-%d %H:%M", columns=("stamp",))
+
+
+def test_summer_time_abbreviation_under_percent_capital_z_is_named():
+    """%Z reads UTC, GMT and names of the time-zone database such as CET (IANA tz database,
+    zone "CET"), not summer-time abbreviations such as CEST, which the database does not
+    define as zones. The refusal names the abbreviation and the two ways out (review,
+    round five); the winter stamps before it are read as UTC+1."""
+    text = ["2021-03-28 01:30 CET", "2021-03-28 03:00 CEST"]
+    with pytest.raises(TimestampError, match=r"line 3 .*the zone abbreviation 'CEST' is not "
+                       r"read .*numeric offset .*\[input\] time_zone"):
+        parse_stamps(pd.Series(text), "%Y-%m-%d %H:%M %Z", time_columns=("stamp",),
+                     source="t.csv", lines=np.arange(2, 4), utc_offset=1.0)
+    winter = parse_stamps(pd.Series(text[:1]), "%Y-%m-%d %H:%M %Z", time_columns=("stamp",),
+                          source="t.csv", lines=np.arange(2, 3), utc_offset=1.0)
+    assert list(winter.stamps) == [datetime(2021, 3, 28, 1, 30)]
