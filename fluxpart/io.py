@@ -1122,10 +1122,9 @@ def _check_delimiter(value) -> str:
 def _check_decimal(value, delimiter: str) -> str:
     if value not in (".", ","):
         raise ConfigError(f"[input] decimal = {setting_text(value)}: expected \".\" or \",\"")
-    if value == delimiter:
-        raise ConfigError(f"[input] decimal = {setting_text(value)} is also the delimiter; a file with "
-                          "decimal commas separates fields by another character: set "
-                          "[input] delimiter = \";\" (or \"\\t\")")
+    # decimal = delimiter = ",": a CSV writer quotes every cell holding the delimiter
+    # ("0,329"), so such a file is read as written; unquoted, its lines hold more fields
+    # than the header, which the reader names with the delimiter
     return value
 
 
@@ -1358,6 +1357,14 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int) -> pd.DataF
     spare = pd.DataFrame({i: cells[width + i] for i in range(extra)})
     filled = np.flatnonzero((spare.apply(lambda c: c.str.strip() != "")).any(axis=1))
     if filled.size:
+        separator = next((c for c in (";", "\t", "|") if c in str(raw.columns[0])), None)
+        if width == 1 and separator:
+            # a header of one cell holding another separator: decimal commas in the data
+            # lines split them where the header line stays whole
+            raise InputFileError(
+                f"input file {str(path)!r}: the header is one cell holding "
+                f"{setting_text(separator)} and the data lines split at their commas: set "
+                f"[input] delimiter = {setting_text(separator)}")
         raise InputFileError(
             f"input file {str(path)!r}: line {int(filled[0]) + first_line} has "
             f"{width + extra} fields where the header has {width}; {filled.size} such "

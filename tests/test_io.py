@@ -1159,8 +1159,30 @@ def test_decimal_comma_and_semicolon(tmp_path):
     out.to_csv(tmp_path / "t.csv", index=False, sep=";", decimal=",")
     frame, _ = _read(tmp_path / "t.csv", delimiter=";", decimal=",")
     pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
-    with pytest.raises(ConfigError, match=r'\[input\] decimal = "," is also the delimiter'):
+    with pytest.raises(InputFileError, match=r'the header is one cell holding ";" and the '
+                                             r'data lines split at their commas: set '
+                                             r'\[input\] delimiter = ";"'):
         _read(tmp_path / "t.csv", decimal=",")
+
+
+def test_decimal_comma_in_quoted_cells_of_a_comma_separated_file(tmp_path):
+    """A comma-separated file whose decimal-comma cells are quoted ("0,329"), as a CSV
+    writer quotes every cell holding the delimiter (RFC 4180, section 2.6; pandas'
+    ``to_csv(decimal=",")`` writes it so), is read with decimal = "," like the
+    semicolon file. It was refused as "decimal is also the delimiter" and could not be
+    read at all (review, round five). Unquoted, its lines have more fields than the
+    header, which is named with the delimiter."""
+    records = _records()
+    out = records.copy()
+    out.insert(0, "stamp", records.index.strftime(FORMAT))
+    out.to_csv(tmp_path / "t.csv", index=False, decimal=",")
+    assert '"' in (tmp_path / "t.csv").read_text().splitlines()[1]
+    frame, _ = _read(tmp_path / "t.csv", decimal=",")
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
+    (tmp_path / "u.csv").write_text((tmp_path / "t.csv").read_text().replace('"', ""))
+    with pytest.raises(InputFileError, match=r"line 2 has \d+ fields where the header has 8.*"
+                                             r"\[input\] delimiter wrong"):
+        _read(tmp_path / "u.csv", decimal=",")
 
 
 def test_whitespace_delimiter(tmp_path):
