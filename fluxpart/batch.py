@@ -271,7 +271,7 @@ def read_sites_file(path) -> NetworkFile:
     Notes
     -----
     A pattern keeps only files ending in ``.toml``, other than the network file
-    itself; a plain path is taken as written. Matches of each pattern are sorted; a config listed twice is kept
+    itself and other network files (a ``[batch]`` table); a plain path is taken as written. Matches of each pattern are sorted; a config listed twice is kept
     once. A site's key is its config's file stem (characters other than letters,
     digits, ``.``, ``_`` and ``-`` become ``_``); stems that occur more than once
     are prefixed with their folder's name (``north/tower.toml`` ->
@@ -319,7 +319,7 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
             # meant to list it as a site
             matches = sorted(Path(p) for p in glob.glob(str(full), recursive=True)
                              if p.endswith(".toml") and Path(p).is_file()
-                             and Path(p).resolve() != network)
+                             and Path(p).resolve() != network and not _is_network_file(p))
             if not matches:
                 raise ConfigError(f"{where} matches no .toml file other than the network "
                                   f"file itself (looked for {str(full)!r})")
@@ -335,6 +335,17 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
                 seen.add(resolved)
                 configs.append(resolved)
     return configs
+
+
+def _is_network_file(path) -> bool:
+    """True for a TOML file with a [batch] table: another network file beside the sites
+    (network-2021.toml, network-2022.toml), which a glob does not list as a site."""
+    import tomllib
+
+    try:
+        return "batch" in tomllib.loads(Path(path).read_text(encoding="utf-8"))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        return False           # not readable here: listed, and its run names the fault
 
 
 def _clean_key(text: str) -> str:

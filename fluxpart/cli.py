@@ -76,9 +76,18 @@ def _format_annual(annual) -> str:
     if "net_uptake_t_co2_per_ha" in annual.columns:
         lines += ["", "Net uptake [t CO2 ha-1 per year; positive = uptake]:"]
         for year, row in annual.iterrows():
+            partial = ""
+            if not row.get("complete", True) and row.get("records_expected", 0) > 0:
+                # the sum of the records held, not scaled up: no rate per year
+                if row["records"] < row["records_expected"]:
+                    months = 12.0 * row["records"] / row["records_expected"]
+                    partial = f"; partial year, {months:.1f} months: not an annual total"
+                else:
+                    partial = (f"; {int(row.get('records_unfilled', 0))} records unfilled: "
+                               "not an annual total")
             lines.append(f"  {year}: {row['net_uptake_t_co2_per_ha']:.2f} ± "
                          f"{row['net_uptake_t_co2_per_ha_uncertainty']:.2f} (1 sigma; "
-                         f"u* threshold {row['ustar_threshold']:.3f} m s-1)")
+                         f"u* threshold {row['ustar_threshold']:.3f} m s-1{partial})")
     return "\n".join(lines)
 
 
@@ -493,6 +502,31 @@ def _lazy(module: str, function: str):
     return handler
 
 
+#: The option a stray positional argument of a command most likely meant.
+_OUTPUT_OPTION = {"run": "--out", "demo": "--out", "report": "--out", "export": "--netcdf"}
+
+
+def _parse(argv):
+    """Parse the command line; an argument left over is named with its command.
+
+    argparse names leftovers from the top-level parser ("fluxpart: unrecognized
+    arguments"), so ``fluxpart run site.toml out`` pointed at ``fluxpart --help``; a
+    single folder or file given without its option is named with that option.
+    """
+    parser = _parser()
+    args, extra = parser.parse_known_args(argv)
+    if extra:
+        command = getattr(args, "command", None)
+        prog = f"fluxpart {command}" if command else "fluxpart"
+        option = _OUTPUT_OPTION.get(command)
+        hint = ""
+        if option and len(extra) == 1 and not extra[0].startswith("-"):
+            hint = f"; to write to {extra[0]!r}, give it as {option} {extra[0]}"
+        parser.exit(2, f"error: {prog}: unrecognized arguments: {' '.join(extra)}{hint} "
+                       f"(see {prog} --help)\n")
+    return args
+
+
 def main(argv=None) -> int:
     """Run the command line; return the exit status.
 
@@ -501,7 +535,7 @@ def main(argv=None) -> int:
     interpreter's exit frees them without its garbage collection passes over every object
     the imports and the command left (~0.2 s CPU of a 2 s ``report``).
     """
-    args = _parser().parse_args(argv)
+    args = _parse(argv)
     thresholds = gc.get_threshold()
     gc.set_threshold(*_GC_THRESHOLDS)
     on_term = None

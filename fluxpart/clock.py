@@ -608,6 +608,11 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
         fixes.append(f"[site] utc_offset = {offset:g} (stamps in UTC{offset:+g} h rather than "
                      f"UTC{utc_offset:+g} h)")
         suggested = float(offset)
+        if offset == 0.0:
+            # a logger kept on UTC: the zone setting reads it and keeps the output in the
+            # site's local standard time, where utc_offset = 0 would move the output to UTC
+            fixes.append(f"[input] time_zone = \"UTC\" (a logger kept on UTC; the output "
+                         f"stays in the site's UTC{utc_offset:+g} h)")
     if time_marks is not None:
         shifts = {"start": 0.0, "middle": interval_minutes / 2.0, "end": float(interval_minutes)}
         for marks, applied in shifts.items():

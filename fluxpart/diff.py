@@ -81,6 +81,12 @@ class DiffReport:
         else:
             lines.append(f"differ: {len(self.items)} recorded item(s) and {len(self.annual)} "
                          "annual value(s)")
+            names = [(a, b) for s, n, a, b in self.items if (s, n) == ("site", "name")]
+            if names:
+                # two towers: the moves below are no rerun's, whatever their size
+                lines.append(f"note: the folders hold two sites (first {names[0][0]}, second "
+                             f"{names[0][1]}): the annual values below compare two sites, "
+                             "not a result and its rerun")
             width = max((len(f"{s} {n}") for s, n, _, _ in self.items), default=0)
             for section, name, a, b in self.items:
                 if a == b == "":        # a platform fact names both values itself

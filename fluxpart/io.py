@@ -170,7 +170,9 @@ class ReadReport:
     stamp_conversions : dict
         What was done to stamps: ``hour_24`` (read as midnight of the next day),
         ``utc_offset`` (converted from stamps carrying an offset), ``daylight_saving``
-        (moved from civil to standard time), ``time_zone`` (the zone, if any).
+        (moved from civil to standard time), ``time_zone`` (the zone, if any);
+        ``rounded_to_minute`` and ``date_only`` (midnight written as the date alone)
+        only where they happened.
     nonfinite_cells : dict
         Canonical name -> cells holding an infinity or a number of magnitude
         :data:`ABSURD_MAGNITUDE` or more, read as missing.
@@ -943,6 +945,22 @@ def _check_keys(table: dict, valid, where: str, spell: str) -> None:
             if where == "site config: top-level table" and key in ("columns", "units"):
                 raise ConfigError(f"site config: the table [{key}] belongs under [input]: "
                                   f"write it as [input.{key}]")
+            if where == "site config: top-level table" and not isinstance(table[key], dict):
+                # a key written above the first [table] header belongs to no table
+                from dataclasses import fields
+
+                from .config import Config
+
+                settings = tuple(f.name for f in fields(Config))
+                owner = next((name for name, keys in (("site", _SITE_KEYS),
+                                                      ("input", _INPUT_KEYS),
+                                                      ("processing", settings))
+                              if key in keys), None)
+                move = (f"move it under [{owner}]" if owner else
+                        "move it under the table it belongs to ([site], [input] or "
+                        "[processing])")
+                raise ConfigError(f"site config: {key} = {setting_text(table[key])} stands "
+                                  f"above the first [table] header, outside any table: {move}")
             if isinstance(table[key], dict) and where.startswith("[") and spell == "{key}":
                 parent = where[1:-1]
                 tables = [v for v in valid if v in ("columns", "units")] or list(valid)
@@ -976,6 +994,13 @@ def _resolve_paths(value, folder: Path) -> tuple:
             if not matches:
                 raise ConfigError(f"[input] path = {setting_text(item)} matches no file in "
                                   f"{str(Path(pattern).parent)!r}")
+            configs = [p for p in matches if p.suffix.lower() == ".toml"]
+            if configs:
+                # a pattern as wide as "*" also takes the site config (and its neighbours)
+                raise ConfigError(f"[input] path = {setting_text(item)} matches the TOML file "
+                                  f"{str(configs[0])!r} ({len(configs)} in all), which is a "
+                                  "config, not a data table: narrow the pattern to the data "
+                                  "files (e.g. \"*.csv\")")
             found.extend(matches)
         else:
             found.append(folder / item)
@@ -1080,7 +1105,8 @@ def _check_missing(value) -> tuple:
                           "e.g. missing = [-9999, \"NA\"]")
     for code in value:
         if isinstance(code, bool) or not isinstance(code, (str, int, float)):
-            raise ConfigError(f"[input] missing: code {code!r} must be a number or a string")
+            raise ConfigError(f"[input] missing: code {setting_text(code)} must be a number "
+                              "or a string, e.g. missing = [-9999, \"NA\"]")
     return tuple(value)
 
 
@@ -1096,10 +1122,9 @@ def _check_delimiter(value) -> str:
 def _check_decimal(value, delimiter: str) -> str:
     if value not in (".", ","):
         raise ConfigError(f"[input] decimal = {setting_text(value)}: expected \".\" or \",\"")
-    if value == delimiter:
-        raise ConfigError(f"[input] decimal = {setting_text(value)} is also the delimiter; a file with "
-                          "decimal commas separates fields by another character: set "
-                          "[input] delimiter = \";\" (or \"\\t\")")
+    # decimal = delimiter = ",": a CSV writer quotes every cell holding the delimiter
+    # ("0,329"), so such a file is read as written; unquoted, its lines hold more fields
+    # than the header, which the reader names with the delimiter
     return value
 
 
@@ -1332,6 +1357,14 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int) -> pd.DataF
     spare = pd.DataFrame({i: cells[width + i] for i in range(extra)})
     filled = np.flatnonzero((spare.apply(lambda c: c.str.strip() != "")).any(axis=1))
     if filled.size:
+        separator = next((c for c in (";", "\t", "|") if c in str(raw.columns[0])), None)
+        if width == 1 and separator:
+            # a header of one cell holding another separator: decimal commas in the data
+            # lines split them where the header line stays whole
+            raise InputFileError(
+                f"input file {str(path)!r}: the header is one cell holding "
+                f"{setting_text(separator)} and the data lines split at their commas: set "
+                f"[input] delimiter = {setting_text(separator)}")
         raise InputFileError(
             f"input file {str(path)!r}: line {int(filled[0]) + first_line} has "
             f"{width + extra} fields where the header has {width}; {filled.size} such "
@@ -1503,7 +1536,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                         "daylight_saving": parsed.daylight_saving,
                         # only where it happened: earlier manifests have no such key
                         **({"rounded_to_minute": parsed.rounded_to_minute}
-                           if parsed.rounded_to_minute else {})},
+                           if parsed.rounded_to_minute else {}),
+                        **({"date_only": parsed.date_only} if parsed.date_only else {})},
     }
 
 
@@ -1735,8 +1769,13 @@ def _empty_required_message(name: str, mapping: dict, derived: list) -> str:
                   else f"column {mapping[key]!r}")
         source = f"{column} has no value at all (every cell empty or a missing code)"
         fix = f"[input.columns] {key}"
+    derive = ""
+    if name == "vpd" and "vpd" not in derived and "rh" in mapping:
+        # a VPD column the logger never filled beside a working RH probe
+        derive = (f", or remove [input.columns] vpd to derive VPD from rh ({mapping['rh']!r}) "
+                  f"and tair ({mapping['tair']!r})")
     return (f"{name} ({VARIABLES[name].description}): {source}; every stage needs measured "
-            f"records of it: check {fix} and [input] missing")
+            f"records of it: check {fix} and [input] missing{derive}")
 
 
 def _describe_mapping(mapping: dict, flag_columns: tuple) -> str:
@@ -1928,6 +1967,9 @@ def _conversion_text(conversions: dict) -> str:
     if conversions.get("rounded_to_minute"):
         parts.append(f"{conversions['rounded_to_minute']} stamp(s) within seconds of a whole "
                      "minute rounded to it")
+    if conversions.get("date_only"):
+        parts.append(f"{conversions['date_only']} stamp(s) written as the date alone read "
+                     "as midnight")
     if conversions.get("time_zone"):
         parts.append(f"civil time of {conversions['time_zone']}: "
                      f"{conversions.get('daylight_saving', 0)} daylight-saving stamp(s) moved "

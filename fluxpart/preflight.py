@@ -34,6 +34,8 @@ many Rg records above potential           screening (clock evidence)          no
 radiation
 a variable repeating one value for days   input (stuck sensor)                no
 (Rg: with the sun up)
+a day or more of records repeating        input (repeated records)            no
+earlier ones in every variable
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 Rg above the night threshold in most      night mask                          where the
@@ -101,6 +103,13 @@ _DISTINCT_VALUES = 3          # fewer distinct present values than this is "cons
 _STUCK = {"nee": (1.0, ()), "rg": (1.0, ()), "ustar": (1.0, ()), "tair": (2.0, ()),
           "tsoil": (2.0, (0.0,)), "vpd": (2.0, (0.0,)), "rh": (2.0, (100.0,))}
 _STUCK_SUN_UP = 200.0
+# Repeated records (our choice): a day or more of consecutive records whose NEE and
+# every driver read equal, value for value, the records a fixed lag of a day or more
+# earlier. Measured records never repeat so (the last digits of a flux and a
+# temperature move from record to record); a logger memory replayed or a block of
+# rows pasted twice does.
+_REPEATED_DAYS = 1.0
+_REPEATED_VARIABLES = ("nee", "rg", "tair", "vpd", "ustar", "tsoil", "rh")
 # Night-mask check (our choice): with the sun below the horizon a pyranometer reads
 # about 0 (a few W m-2 of thermal offset, negative or positive); Rg at or above the
 # night threshold in more than half of at least a day of such records is an offset.
@@ -243,6 +252,39 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
             "value) reads like this, and the values would enter as measured; mark them "
             "missing in a copy of the file"), False))
     return findings
+
+
+def _repeated_records(frame: pd.DataFrame, interval_minutes: float) -> list:
+    """Runs of records that repeat, in every variable read, records a day or more earlier."""
+    index = pd.DatetimeIndex(frame.index)
+    per_day = 1440.0 / interval_minutes
+    names = [n for n in _REPEATED_VARIABLES if n in frame.columns]
+    if "nee" not in names or len(index) < 2 * per_day * _REPEATED_DAYS:
+        return []
+    values = frame[names].apply(pd.to_numeric, errors="coerce")
+    measured = np.flatnonzero(np.isfinite(values["nee"].to_numpy(dtype=float)))
+    if measured.size == 0:
+        return []
+    codes = pd.factorize(pd.util.hash_pandas_object(values.iloc[measured], index=False))[0]
+    first = pd.Series(measured).groupby(codes).transform("min").to_numpy()
+    lag = (measured - first).astype(float)
+    lag[lag < per_day] = np.nan            # an original, or a stuck run (the check above)
+    lags = np.full(len(index), np.nan)
+    lags[measured] = lag
+    runs = _runs(lags, min_length=_REPEATED_DAYS * per_day)
+    if not runs:
+        return []
+    positions = max(runs, key=len)
+    start, end = int(positions[0]), int(positions[-1])
+    back = (index[start] - index[start - int(lags[start])]) / pd.Timedelta(days=1)
+    more = (f"; {len(runs)} such runs, {sum(len(r) for r in runs)} records in all"
+            if len(runs) > 1 else "")
+    return [Finding("input (repeated records)", (
+        f"{positions.size} records {index[start]:%Y-%m-%d %H:%M} .. {index[end]:%Y-%m-%d %H:%M} "
+        f"repeat exactly, in {', '.join(names)}, the records {back:g} days earlier (from "
+        f"{index[start - int(lags[start])]:%Y-%m-%d %H:%M}){more}: a logger memory read out "
+        "twice or rows pasted twice reads like this, and the copies would enter as "
+        "measured; mark them missing in a copy of the file"), False)]
 
 
 def _long_gaps(index: pd.DatetimeIndex, nee: np.ndarray, interval_minutes: float) -> list:
@@ -424,6 +466,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         return [Finding("whole record", "no records", True)]
     if not findings:                     # a wholly constant column is named above
         findings += _stuck(frame, potential, interval_minutes)
+        findings += _repeated_records(frame, interval_minutes)
     days = ((index - index[0].normalize()) / pd.Timedelta(days=1)).to_numpy()
     nee = screened["nee"].to_numpy(dtype=float)
     temperature = (screened[temperature_name].to_numpy(dtype=float)

@@ -30,6 +30,7 @@ otherwise.
 from __future__ import annotations
 
 import base64
+import errno
 import gc
 import html
 import inspect
@@ -896,9 +897,12 @@ def build_report(directory, out=None, *, progress=None) -> Path:
                 atomic_write_bytes(staging / figure.name, figure.png)
             atomic_write_bytes(staging / "report.html", page)
     except OSError as error:        # a read-only medium, no permission, a full disk
+        remedy = ("free space, or give --out a writable folder"
+                  if error.errno in (errno.ENOSPC, errno.EDQUOT)
+                  else "give --out a writable folder (e.g. --out ~/report)")
         raise OutputError(f"the report folder {str(out)!r} cannot be written "
                           f"({error.strerror or error}); the earlier report, if any, is "
-                          "unchanged: free space, or give --out a writable folder") from None
+                          f"unchanged: {remedy}") from None
     tick()
     return out / "report.html"
 

@@ -83,6 +83,9 @@ class ParsedStamps:
     rounded_to_minute : int
         Stamps a few seconds off a whole minute (logger clock jitter, or a
         "minus one second" end stamp) rounded to it.
+    date_only : int
+        Stamps written as the date alone among stamps with a time of day, read as
+        midnight (how R's ``as.character`` and some spreadsheet exports write 00:00).
     """
 
     stamps: pd.DatetimeIndex
@@ -90,6 +93,7 @@ class ParsedStamps:
     offset_converted: int = 0
     daylight_saving: int = 0
     rounded_to_minute: int = 0
+    date_only: int = 0
 
 
 def join_time_columns(raw: pd.DataFrame, time_columns: tuple) -> pd.Series:
@@ -361,6 +365,18 @@ def _numeric_clock(text: pd.Series) -> str:
     return ""
 
 
+def _date_part(time_format: str) -> str | None:
+    """The date fields of a "date, separator, time" format ("%Y-%m-%d" of "%Y-%m-%d %H:%M"),
+    or None where the format has no such split (compact or time-first formats)."""
+    match = re.search(r"[ T](%[HIMSp])", time_format)
+    if match is None:
+        return None
+    date = time_format[:match.start()]
+    if re.search(r"%[HIMSpzZf]", date) or "%d" not in date and "%j" not in date:
+        return None
+    return date
+
+
 def _other_format(stamp: str, time_format: str) -> str:
     """A hint where a stamp fails only for a 12-hour clock or a two-digit year, else ''."""
     def parses(candidate):
@@ -414,8 +430,9 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     ------
     TimestampError
         A stamp does not parse (first one named with its line), stamps carry a UTC
-        offset while a `time_zone` is also given, or a stamp falls in the hour
-        skipped when clocks go forward.
+        offset while a `time_zone` is also given, a stamp falls in the hour
+        skipped when clocks go forward, or the format pairs AM/PM (``%p``) with a
+        24-hour ``%H``.
 
     Notes
     -----
@@ -430,6 +447,12 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     the repeated hour is read as daylight-saving time. The skipped spring hour
     holds no stamps, so it becomes a gap of inserted records.
     """
+    if "%p" in time_format and "%H" in time_format and "%I" not in time_format:
+        # strptime applies AM/PM to %I only: under %H "01:00 PM" is read as 01:00
+        raise TimestampError(
+            f"[input] time_format = {setting_text(time_format)} cannot be used: %p (AM/PM) "
+            "applies only to a 12-hour %I, so with %H every PM stamp would be read as AM; "
+            f"write time_format = {setting_text(time_format.replace('%H', '%I'))}")
     if time_format.endswith("Z") and not time_format.endswith("%Z") and time_zone is None:
         time_format = time_format[:-1] + "%z"       # "...%SZ": the Z of UTC, not a letter
     with_offset = _carries_offset(text, time_format)
@@ -459,6 +482,17 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             parsed[is_24] = again + pd.Timedelta(days=1)
             is_24 = is_24 & again.notna().reindex(parsed.index, fill_value=False).to_numpy()
             failed = parsed.isna().to_numpy()
+    date_only = np.zeros(len(text), dtype=bool)
+    date_format = _date_part(time_format) if not with_offset else None
+    if failed.any() and not failed.all() and date_format is not None:
+        # midnight written as the date alone ("2021-06-02" among "2021-06-02 00:30"):
+        # R's as.character() of date-times and some spreadsheet exports drop 00:00
+        again = pd.to_datetime(text[failed], format=date_format, errors="coerce")
+        if again.notna().any():
+            parsed = parsed.copy()
+            parsed[failed] = again
+            date_only = failed & parsed.notna().to_numpy()
+            failed = parsed.isna().to_numpy()
     if failed.any():
         first = int(np.flatnonzero(failed)[0])
         hint = ""
@@ -475,6 +509,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     f"[input] rows_after_header = {skip}")
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
+        elif "%Z" in time_format and re.search(r"\s[A-Za-z]{2,6}$", text.iloc[first]):
+            # %Z reads UTC, GMT and zone names of the time-zone database (CET, EST), not
+            # summer-time abbreviations (CEST, BST, PDT), several of which are ambiguous
+            hint = (f"; the zone abbreviation {text.iloc[first].split()[-1]!r} is not read "
+                    "(only UTC, GMT and time-zone database names such as CET): write the "
+                    "stamps with a numeric offset (+02:00, %z), or without the abbreviation "
+                    "and with [input] time_zone = \"Area/City\"")
         elif _numeric_clock(text):
             hint = "; " + _numeric_clock(text)
         elif _other_format(text.iloc[first], time_format):
@@ -503,7 +544,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                                              source, lines)
     return ParsedStamps(stamps=pd.DatetimeIndex(index), hour_24=int(is_24.sum()),
                         offset_converted=offset_converted, daylight_saving=daylight,
-                        rounded_to_minute=rounded)
+                        rounded_to_minute=rounded, date_only=int(date_only.sum()))
 
 
 def check_time_zone(time_zone, utc_offset: float, when=None) -> str:

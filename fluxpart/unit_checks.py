@@ -78,6 +78,16 @@ _NIGHT_RG_FLOOR = -20.0
 #: monthly means measured are about 39 °C (Death Valley in July (m)). Air temperature in
 #: °F read as °C passes it whenever a month is warmer than 5.6 °C (42 °F).
 _WARMEST_MONTH = 42.0
+#: Largest excess [K] of the median soil temperature over the median air temperature of
+#: the same records that a soil near the surface shows: the annual mean surface offset is
+#: a few K and reaches about 10 K only under deep, lasting snow (m) (generated site-years
+#: of fluxpart.scenarios: 0.3-2.9 K). In °F a soil at 0-15 °C reads 32-59 and passes the
+#: range check 30 K or more above the air.
+_SOIL_ABOVE_AIR = 15.0
+#: ... and the median soil temperature [°C] read above which a soil so far above the air
+#: is taken for °F: a snow-covered soil near 0 °C under a winter of -25 °C air is 25 K
+#: above the air but never this warm; °F values of a soil at -4 °C or above exceed it.
+_SOIL_FAHRENHEIT_MEDIAN = 25.0
 # Usual band of the 90th percentile of |value| over a record, in the canonical unit,
 # used only to rank alternative units when several would make a column plausible
 # (our choice, common practice).
@@ -477,6 +487,29 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
             "tair = \"°F\" (or list tair in [input] accept_units)")
 
 
+def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes: int):
+    """Soil temperature in °F read as °C, where few values leave the plausible range.
+
+    Near the surface the soil follows the air: over the same records their medians differ
+    by a few K. A soil of a cool site in °F (32-59) passes the 60 °C range limit and would
+    be read 30 K or more above the air, a respiration driver 1.8 T + 32 too warm.
+    """
+    tsoil, tair = converted.get("tsoil"), converted.get("tair")
+    if tsoil is None or tair is None or units.get("tsoil") not in (None, "°C", "degC"):
+        return None
+    both = np.isfinite(tsoil) & np.isfinite(tair)
+    if not _enough_days(int(both.sum()), interval_minutes):
+        return None
+    soil, air = float(np.median(tsoil[both])), float(np.median(tair[both]))
+    if soil - air <= _SOIL_ABOVE_AIR or soil <= _SOIL_FAHRENHEIT_MEDIAN:
+        return None
+    return (f"column {columns['tsoil']!r} (tsoil, read as °C): its median is {soil:.1f} °C, "
+            f"{soil - air:.1f} K above the air temperature's ({air:.1f} °C) over the same "
+            "records, where a soil near the surface stays within a few K of the air; the "
+            f"values look like °F ({(soil - 32.0) * 5.0 / 9.0:.1f} °C): set [input.units] "
+            "tsoil = \"°F\" (or list tsoil in [input] accept_units)")
+
+
 def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: int,
                 potential):
     """Rg in kW m-2 or in MJ m-2 per interval read as W m-2, or net radiation mapped as Rg."""
@@ -600,7 +633,10 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
         refuse = _tair_message(converted, units, columns, interval_minutes)
         if refuse:
             refusals["tair"] = refuse
-        else:   # the VPD checks compare with the saturation at tair, so need a right tair
+        else:
+            refuse_soil = _tsoil_message(converted, units, columns, interval_minutes)
+            if refuse_soil:
+                refusals["tsoil"] = refuse_soil   # the VPD checks compare with the saturation at tair, so need a right tair
             refuse, warn = _vpd_messages(converted, units, columns, interval_minutes)
             if refuse:
                 refusals["vpd"] = refuse

@@ -154,7 +154,7 @@ class Difference:
         if self.kind == "hash":
             return (f"{self.table}: file SHA-256 {self.recomputed} is not the {self.stored} "
                     "recorded in manifest.json (the file was changed after it was written)")
-        if self.kind in ("seal", "extra"):
+        if self.kind in ("seal", "extra", "format"):
             return f"{self.table}: {self.column} {self.stored}"
         if self.kind == "file":
             return f"{self.table}: {self.stored} {self.recomputed}"

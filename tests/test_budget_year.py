@@ -203,3 +203,24 @@ def test_partial_year_warning_states_its_months():
         result = fluxpart.process(frame, fluxpart.demo.SITE,
                                   fluxpart.Config(ustar_method="fixed", clock_check="off"))
     assert any("2021 is a partial" in w and "2.0 months" in w for w in result.warnings)
+
+
+def test_cli_net_uptake_of_a_partial_year_is_not_called_a_rate_per_year():
+    """The printed net uptake (t CO2 ha-1 per year) of a partial or not fully filled year
+    says so on its own line: a month of records printed "2022: -0.52" beside the full
+    year's 8.84 (review, round five). 1488 records of 17520 are 1488 / 17520 x 12 = 1.0
+    months (calendar arithmetic)."""
+    from fluxpart.cli import _format_annual
+
+    annual = pd.DataFrame({
+        "nee": [-241.4, 14.2, -230.0], "complete": [True, False, False],
+        "records": [17520, 1488, 17520], "records_expected": [17520, 17520, 17520],
+        "records_unfilled": [0, 0, 96], "net_uptake_t_co2_per_ha": [8.84, -0.52, 8.43],
+        "net_uptake_t_co2_per_ha_uncertainty": [0.30, 0.05, 0.3],
+        "ustar_threshold": [0.158, 0.2, 0.16]}, index=pd.Index([2021, 2022, 2023], name="year"))
+    lines = _format_annual(annual).splitlines()
+    assert "  2021: 8.84 ± 0.30 (1 sigma; u* threshold 0.158 m s-1)" in lines
+    assert ("  2022: -0.52 ± 0.05 (1 sigma; u* threshold 0.200 m s-1; partial year, 1.0 "
+            "months: not an annual total)") in lines
+    assert ("  2023: 8.43 ± 0.30 (1 sigma; u* threshold 0.160 m s-1; 96 records unfilled: "
+            "not an annual total)") in lines

@@ -92,6 +92,21 @@ def test_file_in_local_time_declared_utc_names_the_offset():
     assert verdict.suggested_utc_offset == 10.0
 
 
+def test_logger_kept_on_utc_names_the_time_zone_setting_too():
+    """Stamps in UTC at a UTC+10 site: besides utc_offset = 0 (which would move the output
+    to UTC), the fix that keeps the output in the site's standard time, [input] time_zone =
+    "UTC", is named (review, round five). The sun is timed by Michalsky (1988) as above."""
+    rg = synthetic_rg(-35.3, 149.1, 0.0, interval_minutes=30, seed=2)
+    verdict = _check(rg, -35.3, 149.1, 10.0, 30)
+    assert verdict.status == "shifted" and verdict.suggested_utc_offset == 0.0
+    assert ('[site] utc_offset = 0 (stamps in UTC+0 h rather than UTC+10 h) or [input] '
+            'time_zone = "UTC" (a logger kept on UTC; the output stays in the site\'s '
+            'UTC+10 h)') in verdict.problems[0]
+    other = _check(synthetic_rg(-35.3, 149.1, 10.0, interval_minutes=30, seed=2),
+                   -35.3, 149.1, 0.0, 30)
+    assert "time_zone" not in other.problems[0]
+
+
 def test_utc_offset_of_the_wrong_sign_near_twelve_hours_is_one_shift():
     """A site at 94.8° W in UTC-6 declared UTC+6: the stamps are 12 h off, so month by
     month the shift reads about +715 or -720 min (a day wraps at ±12 h). Unwrapped around

@@ -58,6 +58,23 @@ def test_setting_and_annual_moves_are_listed(folders, capsys):
     assert "setting rg_tolerance" in out and "first 50.0" in out and "second 80.0" in out
 
 
+def test_two_sites_are_said_to_be_no_rerun(folders, capsys):
+    """Folders of two towers: a note under the count says the annual moves compare two
+    sites (review, round five); two results of one site get no such note."""
+    from pathlib import Path
+
+    from fluxpart.diff import DiffReport
+
+    report = DiffReport(Path("a"), Path("b"), items=(
+        ("site", "name", "Fernwick Hollow (fictional)", "Tarnby Mire (fictional)"),))
+    lines = report.format().splitlines()
+    assert lines[2] == ("note: the folders hold two sites (first Fernwick Hollow (fictional), "
+                        "second Tarnby Mire (fictional)): the annual values below compare "
+                        "two sites, not a result and its rerun")
+    _, first, second = folders
+    assert "note:" not in diff_folders(first, second).format()
+
+
 def test_versions_code_and_platform_are_named(folders, tmp_path):
     """Edited (and resealed) version, code fingerprint and CPU features show up by name."""
     from fluxpart.manifest import manifest_seal

@@ -153,6 +153,20 @@ def test_unit_conversion(tmp_path):
     assert report.units == {"nee": "mg CO2 m-2 s-1", "tair": "K", "vpd": "kPa"}
 
 
+@pytest.mark.parametrize("codes, shown", [("[-9999, true]", "true"), ("[[-9999]]", "[-9999]"),
+                                           ("[{ a = 1 }]", "a table {a = 1}")])
+def test_a_missing_code_of_another_type_is_shown_as_toml(tmp_path, codes, shown):
+    """A code that is neither number nor text is named as the user wrote it in TOML (true,
+    not Python's True; TOML v1.0.0 spells booleans in lower case); review, round five."""
+    path = _site_toml(tmp_path)
+    path.write_text(path.read_text().replace('missing = [-9999, "NA"]', f"missing = {codes}"))
+    with pytest.raises(ConfigError) as error:
+        read_site_config(path)
+    assert str(error.value).startswith(f"[input] missing: code {shown}")
+    assert "must be a number or a string, e.g. missing = [-9999, \"NA\"]" in str(error.value)
+    assert "True" not in str(error.value)
+
+
 def test_missing_codes_become_nan(tmp_path):
     """Numeric codes (within tolerance), string codes, 'NaN' and empty cells become NaN."""
     records = _records().astype(object)
@@ -248,6 +262,26 @@ def test_vpd_derived_from_rh(tmp_path):
     assert report.derived == ("vpd",)
     assert "derived" in report.columns["vpd"]
     assert list(frame.columns) == ["nee", "rg", "tair", "vpd", "ustar", "rh"]
+
+
+def test_empty_vpd_column_beside_rh_names_the_derivation(tmp_path):
+    """A mapped VPD column without any value (a probe never installed) beside a working RH:
+    the error names the fix that derives VPD from RH and air temperature, which the reader
+    does where vpd is not mapped (Magnus form, reference/units.toml); the values derived
+    then are those of the file without the column (review, round five)."""
+    records = _records()
+    records["vpd_air"] = -9999
+    path = _write(tmp_path / "t.csv", records)
+    with pytest.raises(MissingColumnError, match=r"vpd .*column 'vpd_air' has no value at all.*"
+                       r"or remove \[input.columns\] vpd to derive VPD from rh \('rel_hum'\) "
+                       r"and tair \('t_air'\)"):
+        _read(path, columns=dict(MAPPING) | {"rh": "rel_hum"}, missing=[-9999])
+    with pytest.raises(MissingColumnError) as alone:
+        _read(path, missing=[-9999])
+    assert "derive" not in str(alone.value)
+    mapping = {k: v for k, v in MAPPING.items() if k != "vpd"} | {"rh": "rel_hum"}
+    frame, _ = _read(path, columns=mapping, missing=[-9999])
+    np.testing.assert_allclose(frame["vpd"], vpd_from_rh(records["rel_hum"], records["t_air"]))
 
 
 def test_rh_as_fraction_declared(tmp_path):
@@ -370,6 +404,24 @@ def test_unknown_keys_suggest_nearest(tmp_path, where, text, pattern):
         path = _site_toml(tmp_path, extra="")
         path.write_text(path.read_text().replace("[processing]", text + "[processing]"))
     with pytest.raises(ConfigError, match=pattern):
+        read_site_config(path)
+
+
+@pytest.mark.parametrize(("line", "owner"), [("latitude = -41.3", "[site]"),
+                                             ("path = \"tower.csv\"", "[input]"),
+                                             ("seed = 3", "[processing]"),
+                                             ("lattitude = 1", "the table it belongs to")])
+def test_key_above_the_first_table_is_named_with_its_table(tmp_path, line, owner):
+    """A key written above the first [table] header belongs to no table (TOML v1.0.0,
+    "Table": keys before the first header are in the root table). It was reported as an
+    unknown "top-level table [latitude]"; now the key, its value and the table it belongs
+    to are named (review, round five)."""
+    path = _site_toml(tmp_path)
+    path.write_text(line + "\n" + path.read_text())
+    key = line.split(" = ")[0]
+    with pytest.raises(ConfigError, match=rf"^site config: {key} = .* stands above the first "
+                       rf"\[table\] header, outside any table: move it under "
+                       + re.escape(owner)):
         read_site_config(path)
 
 
@@ -928,6 +980,18 @@ def test_glob_and_list_in_site_config(tmp_path):
         read_site_config(_site_toml(tmp_path, csv="none_*.csv"))
 
 
+def test_glob_matching_the_site_config_is_refused_naming_it(tmp_path):
+    """A pattern as wide as "*" also takes the site config beside the data: refused naming
+    the TOML file and the fix. Before, the first TOML was read as a table and the error said
+    the time column was not in it ("the file has columns: '[site]'"; review, round five)."""
+    _write(tmp_path / "tower.csv", _records(periods=200), marks="end")
+    with pytest.raises(ConfigError, match=r'\[input\] path = "\*" matches the TOML file '
+                       r"'.*site\.toml' \(1 in all\), which is a config, not a data table: "
+                       r'narrow the pattern to the data files'):
+        read_site_config(_site_toml(tmp_path, csv="*"))
+    assert read_site_config(_site_toml(tmp_path, csv="*.csv")).input_paths[0].name == "tower.csv"
+
+
 @pytest.mark.parametrize("content", ["", "\n\n", "stamp,co2_flux,sw_in,t_air,vpd_air,u_fric\n"])
 def test_empty_file_among_several_is_skipped_and_named(tmp_path, content):
     """A 0-byte, blank or header-only file in a glob (a logger file opened as the power
@@ -1095,8 +1159,30 @@ def test_decimal_comma_and_semicolon(tmp_path):
     out.to_csv(tmp_path / "t.csv", index=False, sep=";", decimal=",")
     frame, _ = _read(tmp_path / "t.csv", delimiter=";", decimal=",")
     pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
-    with pytest.raises(ConfigError, match=r'\[input\] decimal = "," is also the delimiter'):
+    with pytest.raises(InputFileError, match=r'the header is one cell holding ";" and the '
+                                             r'data lines split at their commas: set '
+                                             r'\[input\] delimiter = ";"'):
         _read(tmp_path / "t.csv", decimal=",")
+
+
+def test_decimal_comma_in_quoted_cells_of_a_comma_separated_file(tmp_path):
+    """A comma-separated file whose decimal-comma cells are quoted ("0,329"), as a CSV
+    writer quotes every cell holding the delimiter (RFC 4180, section 2.6; pandas'
+    ``to_csv(decimal=",")`` writes it so), is read with decimal = "," like the
+    semicolon file. It was refused as "decimal is also the delimiter" and could not be
+    read at all (review, round five). Unquoted, its lines have more fields than the
+    header, which is named with the delimiter."""
+    records = _records()
+    out = records.copy()
+    out.insert(0, "stamp", records.index.strftime(FORMAT))
+    out.to_csv(tmp_path / "t.csv", index=False, decimal=",")
+    assert '"' in (tmp_path / "t.csv").read_text().splitlines()[1]
+    frame, _ = _read(tmp_path / "t.csv", decimal=",")
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
+    (tmp_path / "u.csv").write_text((tmp_path / "t.csv").read_text().replace('"', ""))
+    with pytest.raises(InputFileError, match=r"line 2 has \d+ fields where the header has 8.*"
+                                             r"\[input\] delimiter wrong"):
+        _read(tmp_path / "u.csv", decimal=",")
 
 
 def test_whitespace_delimiter(tmp_path):

@@ -786,10 +786,29 @@ def test_a_full_disk_leaves_the_earlier_report_whole(folder, tmp_path, monkeypat
     assert main(["report", str(directory), "--quiet"]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("error:") and "No space left" in err[0]
+    assert "free space" in err[0]
     assert _files(directory / "report") == before
     assert sorted(p.name for p in directory.iterdir() if p.name.startswith(".")) == []
     assert sorted(p.name for p in tmp_path.iterdir()) == ["demo-2021"]     # no lock file
     fluxpart.load(directory)
+
+
+def test_a_read_only_folder_is_not_told_to_free_space(folder, tmp_path, monkeypatch, capsys):
+    """A result folder on a read-only medium (EROFS, POSIX errno): the line names the cause
+    and a writable --out, not "free space" (review, round five)."""
+    import errno
+
+    directory = tmp_path / "demo-2021"
+    shutil.copytree(folder["directory"], directory)
+
+    def read_only(path, data):
+        raise OSError(errno.EROFS, "Read-only file system", str(path))
+
+    monkeypatch.setattr(report, "atomic_write_bytes", read_only)
+    assert main(["report", str(directory), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "(Read-only file system)" in err[0]
+    assert "free space" not in err[0] and "give --out a writable folder" in err[0]
 
 
 def test_report_replaces_its_folder_whole_and_sweeps_a_killed_one(folder, tmp_path):

@@ -147,6 +147,25 @@ def test_usage_mistakes_are_one_error_line(capsys):
         assert len(err) == 1 and err[0].startswith("error: ") and said in err[0], err
 
 
+def test_a_stray_output_folder_is_named_with_its_command_and_option(capsys):
+    """`fluxpart run site.toml out` (the folder without --out): argparse named the leftover
+    from the top-level parser, "fluxpart: unrecognized arguments" and "see fluxpart
+    --help"; now the command's own help and the option that takes the folder (review,
+    round five)."""
+    import pytest
+
+    for argv, said in ((["run", "site.toml", "out"],
+                        "error: fluxpart run: unrecognized arguments: out; to write to 'out', "
+                        "give it as --out out (see fluxpart run --help)"),
+                       (["verify", "out", "--fast"],
+                        "error: fluxpart verify: unrecognized arguments: --fast (see fluxpart "
+                        "verify --help)")):
+        with pytest.raises(SystemExit) as stop:
+            main(argv)
+        assert stop.value.code == 2
+        assert capsys.readouterr().err.strip().splitlines() == [said]
+
+
 def test_status_survives_a_reader_that_closes_early(tmp_path):
     """`fluxpart check SITE | head -1`: the reader closes the pipe, the next write fails
     (EPIPE, POSIX write(2)). The command still exits with its own status (1: a problem

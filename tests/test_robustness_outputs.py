@@ -159,3 +159,17 @@ def test_a_glob_beside_the_network_file_does_not_list_it_as_a_site(tmp_path):
     sites.write_text('[batch]\nsites = ["SITES.toml"]\n', encoding="utf-8")
     with pytest.raises(ConfigError, match="is the network file itself"):
         read_sites_file(sites)
+
+
+def test_a_glob_does_not_list_other_network_files_as_sites(tmp_path):
+    """Two network files beside the sites (one per year) and sites = ["*.toml"]: each
+    listed the other as a site, which failed ("top-level table [batch] is unknown") in
+    every batch (review, round five). A TOML file with a [batch] table is not a site."""
+    from fluxpart.batch import read_sites_file
+
+    write_example(tmp_path)
+    for name in ("network-2021.toml", "network-2022.toml"):
+        (tmp_path / name).write_text('[batch]\nsites = ["*.toml"]\n', encoding="utf-8")
+    for name in ("network-2021.toml", "network-2022.toml"):
+        keys = [key for key, _ in read_sites_file(tmp_path / name).sites]
+        assert keys == ["quillmoor_grassland"], name

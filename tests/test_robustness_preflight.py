@@ -14,7 +14,7 @@ from fluxpart import demo
 from fluxpart.cli import main
 from fluxpart.errors import InsufficientDataError
 from fluxpart.io import _potential
-from fluxpart.preflight import _stuck
+from fluxpart.preflight import _repeated_records, _stuck
 
 
 @pytest.fixture(scope="module")
@@ -136,3 +136,27 @@ def test_month_without_nee_is_named_as_a_quality_c_gap(year, days, found):
     assert bool(named) is found
     if found:
         assert not named[0].fatal and "31.2 days (2021-06-30" in named[0].message
+
+
+def test_a_week_of_records_read_out_twice_is_named_with_both_periods(year):
+    """A week of every variable pasted over the next week (a logger memory read out twice,
+    rows pasted twice) passed `check` clean and entered as measured (review, round five).
+    Named, not fatal, with the copy's period and the lag. Fact of the trade as above: the
+    last digits of a measured flux and temperature never repeat over a day of records;
+    the correct demo year and a copy shifted by less than a day are not named."""
+    frame, _, _ = year
+    assert _repeated_records(frame, 30) == []
+    pasted = frame.copy()
+    source = (pasted.index >= "2021-06-03") & (pasted.index < "2021-06-10")
+    target = (pasted.index >= "2021-06-10") & (pasted.index < "2021-06-17")
+    pasted.loc[target] = frame.loc[source].to_numpy()
+    findings = _repeated_records(pasted, 30)
+    assert len(findings) == 1 and not findings[0].fatal
+    assert findings[0].stage == "input (repeated records)"
+    message = findings[0].message
+    assert "2021-06-10" in message and "the records 7 days earlier (from 2021-06-03" in message
+    measured = int(frame.loc[source, "nee"].notna().sum())
+    assert message.startswith(f"{measured} records ")
+    shifted = frame.copy()
+    shifted.loc[target] = frame.shift(47).loc[target].to_numpy()      # 23.5 h earlier
+    assert _repeated_records(shifted, 30) == []

@@ -249,3 +249,55 @@ def test_twelve_hour_clock_and_two_digit_year_are_named(stamps, time_format, sai
     fixed = said.split("time_format = ")[1].strip('"')
     assert list(_parse(stamps, fixed, columns=("TIMESTAMP",))) == [
         pd.Timestamp(2021, 1, 1, 0, 30), pd.Timestamp(2021, 1, 1, 1, 0)]
+
+
+def test_am_pm_with_a_24_hour_field_is_refused():
+    """%p beside %H: Python's strptime applies AM/PM only to the 12-hour %I (Python
+    documentation of ``time.strftime``, note 1: "the %p directive only affects the output
+    hour field if the %I directive is used to parse the hour"), so "01:00 PM" would read
+    as 01:00. Refused naming the setting and
+    the fix, not reported as repeated stamps (review, round five)."""
+    stamps = ["01/01/2021 12:30 AM", "01/01/2021 01:00 AM", "01/01/2021 01:00 PM"]
+    with pytest.raises(TimestampError, match=r'time_format = "%m/%d/%Y %H:%M %p" cannot be '
+                       r'used: %p \(AM/PM\) applies only to a 12-hour %I.*'
+                       r'time_format = "%m/%d/%Y %I:%M %p"'):
+        _parse(stamps, "%m/%d/%Y %H:%M %p", columns=("stamp",))
+    fixed = _parse(stamps, "%m/%d/%Y %I:%M %p", columns=("stamp",))
+    assert list(fixed) == [datetime(2021, 1, 1, 0, 30), datetime(2021, 1, 1, 1, 0),
+                           datetime(2021, 1, 1, 13, 0)]
+
+
+def test_midnight_written_as_the_date_alone_is_read_as_midnight():
+    """R's ``as.character`` of date-times (R 4.3.0 NEWS (m): it drops a zero time of day
+    element by element) and some spreadsheet exports write
+    00:00 as the date alone ("2021-01-02" between "2021-01-01 23:30" and
+    "2021-01-02 00:30"). Read as midnight and counted; the calendar is Python's datetime.
+    A stamp with a cut time, an empty stamp, or a file of dates only stays an error."""
+    truth = [datetime(2021, 1, 1, 23, 0) + timedelta(minutes=30 * k) for k in range(5)]
+    text = [s.strftime("%Y-%m-%d") if s.hour == 0 and s.minute == 0
+            else s.strftime("%Y-%m-%d %H:%M") for s in truth]
+    assert text[2] == "2021-01-02"
+    series = pd.Series(text)
+    parsed = parse_stamps(series, "%Y-%m-%d %H:%M", time_columns=("stamp",), source="t.csv",
+                          lines=np.arange(2, 7))
+    assert list(parsed.stamps) == truth and parsed.date_only == 1
+    for bad in ("", "2021-01-02 00"):
+        with pytest.raises(TimestampError, match=r"line 4 of 't.dat' has stamp"):
+            _parse(text[:2] + [bad] + text[3:], "%Y-%m-%d %H:%M", columns=("stamp",))
+    with pytest.raises(TimestampError, match=r"5 stamp\(s\) fail to parse"):
+        _parse([s.strftime("%Y-%m-%d") for s in truth], "%Y-%m-%d %H:%M", columns=("stamp",))
+
+
+def test_summer_time_abbreviation_under_percent_capital_z_is_named():
+    """%Z reads UTC, GMT and names of the time-zone database such as CET (IANA tz database,
+    zone "CET"), not summer-time abbreviations such as CEST, which the database does not
+    define as zones. The refusal names the abbreviation and the two ways out (review,
+    round five); the winter stamps before it are read as UTC+1."""
+    text = ["2021-03-28 01:30 CET", "2021-03-28 03:00 CEST"]
+    with pytest.raises(TimestampError, match=r"line 3 .*the zone abbreviation 'CEST' is not "
+                       r"read .*numeric offset .*\[input\] time_zone"):
+        parse_stamps(pd.Series(text), "%Y-%m-%d %H:%M %Z", time_columns=("stamp",),
+                     source="t.csv", lines=np.arange(2, 4), utc_offset=1.0)
+    winter = parse_stamps(pd.Series(text[:1]), "%Y-%m-%d %H:%M %Z", time_columns=("stamp",),
+                          source="t.csv", lines=np.arange(2, 3), utc_offset=1.0)
+    assert list(winter.stamps) == [datetime(2021, 3, 28, 1, 30)]

@@ -116,6 +116,30 @@ def test_fahrenheit_air_temperature_of_a_cool_site_refused(seed):
     assert "tair" not in refusals
 
 
+@pytest.mark.parametrize("seed", [0, 4, 18])
+def test_fahrenheit_soil_temperature_of_a_cool_site_refused(seed):
+    """Soil temperature in °F read as °C at a cool site: every value stays below the 60 °C
+    range limit (a soil at 0-15 °C reads 32-59), so it passed unnoticed as a respiration
+    driver 1.8 T + 32 too warm (review, round five). Refused naming tsoil and °F.
+    Facts: °F = 9/5 °C + 32 (NIST SP 811 (m)). Correct records pass, and so does a
+    snow-covered soil near 0 °C under a -25 °C winter (25 K above the air, as in the
+    insulation of soil by snow, common practice)."""
+    from fluxpart import scenarios
+
+    frame = scenarios.generate(seed).frame
+    minutes = int((frame.index[1] - frame.index[0]).total_seconds() // 60)
+    converted = {n: frame[n].to_numpy(float) for n in ("nee", "rg", "tair", "vpd", "tsoil")}
+    columns = {n: n for n in converted}
+    refusals, _ = mixup_messages(converted, {}, columns, minutes)
+    assert refusals == {}
+    fahrenheit = dict(converted, tsoil=converted["tsoil"] * 9 / 5 + 32)
+    refusals, _ = mixup_messages(fahrenheit, {}, columns, minutes)
+    assert list(refusals) == ["tsoil"] and 'tsoil = "°F"' in refusals["tsoil"]
+    winter = {"tair": np.full(30 * 48, -25.0), "tsoil": np.full(30 * 48, -0.5)}
+    refusals, _ = mixup_messages(winter, {}, {"tair": "t", "tsoil": "ts"}, 30)
+    assert "tsoil" not in refusals
+
+
 @pytest.mark.parametrize(("variable", "factor", "what"), [
     ("rg", 1e-3, "kW m-2"),          # a pyranometer logged in kW m-2 from July on
     ("nee", 1.0 / 22.7, "mg CO2"),   # a flux exported in mg CO2 m-2 s-1 from July on

@@ -190,6 +190,18 @@ def test_environment_entry_edited_to_another_type_is_tampering_not_a_crash(copy,
     assert named in out
 
 
+def test_a_folder_of_another_result_format_is_named_in_one_readable_line(copy, capsys):
+    """A manifest of another format (a folder an older or newer release wrote): exit 1 and
+    the format line reads as the folder check words it; it printed "column 'manifest.json'
+    format differ: stored has format ..., recomputed " (review, round five)."""
+    _edit_manifest(copy / "out", lambda m: m.update(format="fluxpart-result/1"), reseal=True)
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert ("  folder: manifest.json has format 'fluxpart-result/1'; this fluxpart reads "
+            "'fluxpart-result/2' (rerun to rewrite the folder)\n") in out
+    assert "format differ" not in out
+
+
 def test_extra_and_missing_files_are_named(copy, capsys):
     """A stale table left in the folder and a deleted one: exit 1, both named; load refuses."""
     shutil.copy(copy / "out" / "daily.parquet", copy / "out" / "parameters_old.parquet")
