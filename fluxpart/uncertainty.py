@@ -1537,22 +1537,29 @@ def _donor_noise(inputs: UncertaintyInputs, codes, filled, interval_minutes) -> 
     return np.where(filled, share * np.square(np.nan_to_num(inputs.fill_noise_sigma)), 0.0)
 
 
-def _grouped_square(keys, groups, values) -> pd.Series:
-    """Σ over groups of (Σ values of the group within the period)², per period key."""
+def _grouped_square(codes, periods, groups, values) -> np.ndarray:
+    """Σ over groups of (Σ values of the group within the period)², per period.
+
+    `codes`: each record's period as a position in ``range(periods)``; `groups`: each
+    record's group (an integer >= 0; < 0: in none). Returns one value per period, 0 where
+    a period has no group.
+    """
     values = np.asarray(values, dtype=float)
     groups = np.asarray(groups)
-    use = np.isfinite(values) & (groups >= 0) & (values != 0)
+    out = np.zeros(periods)
+    # a record without a period (code -1) is left out, as groupby leaves out a missing key
+    use = np.isfinite(values) & (groups >= 0) & (values != 0) & (codes >= 0)
     if not use.any():
-        return pd.Series(0.0, index=pd.Index(pd.unique(np.asarray(keys))))
-    # one integer code per (period, group) pair: the same sums, in the same record order,
-    # as grouping on the two columns, without building a two-level index
-    key_codes, key_values = pd.factorize(np.asarray(keys)[use], sort=False)
-    use_key = key_codes >= 0                      # a missing key is left out, as groupby does
-    group_codes, group_values = pd.factorize(groups[use][use_key], sort=False)
-    pair = key_codes[use_key].astype(np.int64) * len(group_values) + group_codes
-    inner = pd.Series(values[use][use_key]).groupby(pair, sort=False).sum()
-    outer = np.square(inner).groupby(inner.index.to_numpy() // len(group_values)).sum()
-    return pd.Series(outer.to_numpy(), index=key_values[outer.index.to_numpy()])
+        return out
+    # one integer per (period, group) pair: the same sums, in the same record order, as
+    # grouping on the two columns, without building a two-level index
+    used_groups = groups[use].astype(np.int64)
+    span = int(used_groups.max()) + 1
+    pair = codes[use].astype(np.int64) * span + used_groups
+    inner = pd.Series(values[use]).groupby(pair, sort=False).sum()
+    outer = np.square(inner).groupby(inner.index.to_numpy() // span).sum()
+    out[outer.index.to_numpy()] = outer.to_numpy()
+    return out
 
 
 def ustar_sigma(sums: pd.DataFrame, percentiles) -> pd.Series:
@@ -1974,7 +1981,7 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         return pd.Series(sums.to_numpy(), index=index)
 
     def grouped(groups, values):
-        return _grouped_square(keys, groups, values).reindex(index).fillna(0.0)
+        return pd.Series(_grouped_square(codes, len(index), groups, values), index=index)
 
     measured = np.asarray(inputs.measured, dtype=bool)
     night = np.asarray(inputs.is_night, dtype=bool)
