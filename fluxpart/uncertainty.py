@@ -758,6 +758,20 @@ def _clear_start(start, length, occupied, rng, tries=_CLEAR_TRIES) -> int:
     return int(start)
 
 
+def _hold_out(mask, hidden, hidden_real, starts, lengths, sources) -> None:
+    """Mark the artificial gaps ``[start, start + length)`` in `mask` (cut at the end of
+    the record) and, where `hidden` is given, add to it the pattern of `hidden_real`
+    of the real gap each copies (starting at `sources`), all gaps of a draw at once."""
+    offset = np.arange(lengths.sum()) - np.repeat(np.cumsum(lengths) - lengths, lengths)
+    position = np.repeat(starts, lengths) + offset
+    inside = position < mask.size
+    position = position[inside]
+    mask[position] = True
+    if hidden is not None:
+        rows, *columns = np.nonzero(hidden_real[(np.repeat(sources, lengths) + offset)[inside]])
+        hidden[(position[rows], *columns)] = True
+
+
 def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_GAP_ROUNDS,
                           share=_GAP_SHARE, seed=0, records_per_day=None,
                           conditions_missing=None) -> pd.DataFrame:
@@ -884,15 +898,10 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
         while (mask & measured).sum() < target:
             gaps = rng.choice(pool, size=draws)
             starts = rng.integers(0, n, size=draws)
-            for start, gap in zip(starts, gaps, strict=True):
-                length = real_lengths[gap]
-                if is_long:
-                    start = _clear_start(start, length, mask | long_real, rng)
-                mask[start:start + length] = True
-                if hidden is not None:
-                    stop = min(start + length, n)
-                    source = real_starts[gap]
-                    hidden[start:stop] |= hidden_real[source:source + stop - start]
+            if is_long:                                 # one gap a draw
+                starts = np.array([_clear_start(starts[0], real_lengths[gaps[0]],
+                                                mask | long_real, rng)])
+            _hold_out(mask, hidden, hidden_real, starts, real_lengths[gaps], real_starts[gaps])
         held = mask & measured
         filled = np.asarray(fill(np.where(mask, np.nan, nee), hidden), dtype=float)
         error = np.where(held, filled - nee, 0.0)
