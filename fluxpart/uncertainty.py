@@ -2092,7 +2092,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     out["nee_uncertainty_gapfill_bias"] = bias if gapfill_known else unknown
     out["nee_uncertainty_gapfill_bias_se"] = bias_se if gapfill_known else unknown
 
-    run_sums = {name: carbon_sums(frame) for name, frame in inputs.runs.items()}
+    # the central run is the central fluxes (record_inputs): summed once
+    run_sums = {name: carbon if frame is fluxes else carbon_sums(frame)
+                for name, frame in inputs.runs.items()}
     ustar = {}
     for flux in _FLUXES:
         if run_sums:
