@@ -1833,6 +1833,12 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
             nee_measured, is_night, fluxes["reco_nighttime"].to_numpy(float), other_driver_reco))
 
 
+def _nan_to_zero(values) -> np.ndarray:
+    """`values` with NaN as 0 (as Series.fillna(0.0); infinities kept)."""
+    values = np.asarray(values, dtype=float)
+    return np.where(np.isnan(values), 0.0, values)
+
+
 def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
                        ustar_percentiles=(16, 50, 84)) -> pd.DataFrame:
     """1-sigma parts and total uncertainty of every flux summed per period.
@@ -1985,12 +1991,13 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
 
     carbon = carbon_sums(fluxes)
 
+    # the parts are arrays in the order of `index` (the same element-wise arithmetic as on
+    # Series, without building a Series for every intermediate), a table at the end
     def per_period(values):
-        sums = pd.Series(np.asarray(values, dtype=float)).groupby(codes).sum()
-        return pd.Series(sums.to_numpy(), index=index)
+        return pd.Series(np.asarray(values, dtype=float)).groupby(codes).sum().to_numpy()
 
     def grouped(groups, values):
-        return pd.Series(_grouped_square(codes, len(index), groups, values), index=index)
+        return _grouped_square(codes, len(index), groups, values)
 
     measured = np.asarray(inputs.measured, dtype=bool)
     night = np.asarray(inputs.is_night, dtype=bool)
@@ -2001,8 +2008,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     out["nee_uncertainty_random"] = np.sqrt(random_var)
 
     model = inputs.gapfill_model
-    gap_var = gap_var_day = pd.Series(0.0, index=index)
-    bias = bias_se = pd.Series(0.0, index=index)
+    gap_var = gap_var_day = np.zeros(len(index))
+    bias = bias_se = np.zeros(len(index))
     gapfill_known = model is not None and not model[["bias", "independent_variance"]].isna().all().all()
     if gapfill_known:
         # the two classes' biases come from different artificial gaps (independent
@@ -2084,7 +2091,7 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             size[where] = _fill_size(nee_filled[where], reference)
         gap_var, bias, bias_se = fill_variance(filled)
         gap_var_day = fill_variance(filled & ~night)[0]
-    unknown = pd.Series(np.nan, index=index)
+    unknown = np.full(len(index), np.nan)
     out["nee_uncertainty_gapfill"] = np.sqrt(gap_var) if gapfill_known else unknown
     out["gpp_nighttime_uncertainty_gapfill"] = np.sqrt(gap_var_day) if gapfill_known else unknown
     out["gpp_nighttime_uncertainty_random"] = np.sqrt(
@@ -2100,9 +2107,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         if run_sums:
             table = pd.DataFrame({name: s[flux].to_numpy() for name, s in run_sums.items()},
                                  index=index)
-            ustar[flux] = ustar_sigma(table, ustar_percentiles)
+            ustar[flux] = ustar_sigma(table, ustar_percentiles).to_numpy()
         else:
-            ustar[flux] = pd.Series(np.nan, index=index)
+            ustar[flux] = np.full(len(index), np.nan)
         out[f"{flux}_uncertainty_ustar"] = ustar[flux]
 
     reco_night = fluxes["reco_nighttime"].to_numpy(dtype=float)
@@ -2137,9 +2144,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         "reco_nighttime": np.sqrt(e0_part + night_rref * factor**2) if night_known else
         np.sqrt(e0_part),
         "reco_daytime": np.sqrt(day_rref) * factor if day_known else
-        pd.Series(np.nan, index=index),
+        np.full(len(index), np.nan),
         "gpp_daytime": np.sqrt(day_rref_gpp) * factor if day_known else
-        pd.Series(np.nan, index=index),
+        np.full(len(index), np.nan),
     }
     # nighttime GPP = Reco - NEE: at night both are estimates of the same night respiration
     # from the same night records, so only the part outside the night reaches it (Notes)
@@ -2149,40 +2156,41 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         out[f"{flux}_uncertainty_parameters"] = part
 
     # what each method's own quantified parts already explain of the difference
-    specific = {flux: np.square(part.fillna(0.0)) for flux, part in parameters.items()}
+    specific = {flux: np.square(_nan_to_zero(part)) for flux, part in parameters.items()}
     specific["gpp_nighttime"] = specific["gpp_nighttime"] \
         + np.square(out["gpp_nighttime_uncertainty_random"]) \
-        + np.square(out["gpp_nighttime_uncertainty_gapfill"].fillna(0.0))
+        + np.square(_nan_to_zero(out["gpp_nighttime_uncertainty_gapfill"]))
     method = {}
     for kind in ("gpp", "reco"):
-        difference = carbon[f"{kind}_daytime"] - carbon[f"{kind}_nighttime"]
+        difference = (carbon[f"{kind}_daytime"].to_numpy()
+                      - carbon[f"{kind}_nighttime"].to_numpy())
         excess = np.square(difference) - specific[f"{kind}_daytime"] \
             - specific[f"{kind}_nighttime"]
-        method[kind] = np.sqrt(np.maximum(excess, 0.0) / 2.0).where(difference.notna())
+        method[kind] = np.where(np.isnan(difference), np.nan,
+                                np.sqrt(np.maximum(excess, 0.0) / 2.0))
         out[f"{kind}_uncertainty_partitioning"] = method[kind]
     if inputs.driver_delta is not None:
-        driver = per_period(np.nan_to_num(inputs.driver_delta)).abs() * factor \
+        driver = np.abs(per_period(np.nan_to_num(inputs.driver_delta))) * factor \
             * np.sqrt(inputs.driver_weight)
     else:
-        driver = pd.Series(np.nan, index=index)
+        driver = np.full(len(index), np.nan)
     out["reco_uncertainty_temperature_driver"] = driver
     if inputs.form_delta is not None:
-        form_difference = per_period(np.nan_to_num(inputs.form_delta)).abs() * factor
+        form_difference = np.abs(per_period(np.nan_to_num(inputs.form_delta))) * factor
         form = form_difference * inputs.form_spread
         form_day = form_difference * np.sqrt(inputs.form_weight)   # daytime keeps Lloyd–Taylor
     else:
-        form = form_day = pd.Series(np.nan, index=index)
+        form = form_day = np.full(len(index), np.nan)
     out["reco_uncertainty_respiration_form"] = form
     out["reco_daytime_uncertainty_respiration_form"] = form_day
 
     def total(*parts):
         """√Σ part² per period over the parts it has; NaN where it has none."""
-        squares = np.square(np.stack([pd.Series(p, index=index).to_numpy(dtype=float)
-                                      for p in parts]))
+        squares = np.square(np.stack([np.asarray(p, dtype=float) for p in parts]))
         known = ~np.isnan(squares)
         # summed part after part, as DataFrame.sum(axis=1) sums its columns
         sums = np.where(known, squares, 0.0).sum(axis=0)
-        return pd.Series(np.sqrt(np.where(known.any(axis=0), sums, np.nan)), index=index)
+        return np.sqrt(np.where(known.any(axis=0), sums, np.nan))
 
     nee_parts = [out["nee_uncertainty_random"], out["nee_uncertainty_gapfill"], ustar["nee"]]
     out["nee_uncertainty_total"] = total(*nee_parts)
@@ -2196,7 +2204,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     out["gpp_daytime_uncertainty_total"] = total(
         ustar["gpp_daytime"], parameters["gpp_daytime"], method["gpp"], driver, form_day)
     for flux in _FLUXES:
-        out[f"{flux}_sigma"] = out[f"{flux}_uncertainty_total"].where(carbon[flux].notna())
+        out[f"{flux}_sigma"] = np.where(carbon[flux].isna().to_numpy(), np.nan,
+                                        out[f"{flux}_uncertainty_total"])
     return pd.DataFrame(out, index=index)
 
 
