@@ -2024,7 +2024,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
                                ("size_reference_long", np.nan)):  # before 0.13.0
             if column not in model:
                 model = model.assign(**{column: before})
-        by_class = {name: model[name].reindex(["night", "day"]).to_numpy(dtype=float)
+        night_day = model.reindex(["night", "day"])        # one row per class, night first
+        by_class = {name: night_day[name].to_numpy(dtype=float)
                     for name in ("bias", "bias_se", "independent_variance", "correlated_variance",
                                  "correlated_variance_long", "neighbour_covariance",
                                  "block_covariance_long", "size_reference_long")}
