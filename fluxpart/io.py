@@ -1288,7 +1288,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
         options["sep"] = delimiter
     try:
         raw = pd.read_csv(_io.StringIO(text), skip_blank_lines=False,
-                          skiprows=lambda line: line in skipped, **options)
+                          skiprows=skipped, **options)     # a set: no Python call per line
         header = pd.read_csv(_io.StringIO(text), header=None, nrows=1,
                              skiprows=rows_before_header, **options).iloc[0].tolist()
     except pd.errors.EmptyDataError:

@@ -758,6 +758,20 @@ def _clear_start(start, length, occupied, rng, tries=_CLEAR_TRIES) -> int:
     return int(start)
 
 
+def _hold_out(mask, hidden, hidden_real, starts, lengths, sources) -> None:
+    """Mark the artificial gaps ``[start, start + length)`` in `mask` (cut at the end of
+    the record) and, where `hidden` is given, add to it the pattern of `hidden_real`
+    of the real gap each copies (starting at `sources`), all gaps of a draw at once."""
+    offset = np.arange(lengths.sum()) - np.repeat(np.cumsum(lengths) - lengths, lengths)
+    position = np.repeat(starts, lengths) + offset
+    inside = position < mask.size
+    position = position[inside]
+    mask[position] = True
+    if hidden is not None:
+        rows, *columns = np.nonzero(hidden_real[(np.repeat(sources, lengths) + offset)[inside]])
+        hidden[(position[rows], *columns)] = True
+
+
 def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_GAP_ROUNDS,
                           share=_GAP_SHARE, seed=0, records_per_day=None,
                           conditions_missing=None) -> pd.DataFrame:
@@ -884,15 +898,10 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
         while (mask & measured).sum() < target:
             gaps = rng.choice(pool, size=draws)
             starts = rng.integers(0, n, size=draws)
-            for start, gap in zip(starts, gaps, strict=True):
-                length = real_lengths[gap]
-                if is_long:
-                    start = _clear_start(start, length, mask | long_real, rng)
-                mask[start:start + length] = True
-                if hidden is not None:
-                    stop = min(start + length, n)
-                    source = real_starts[gap]
-                    hidden[start:stop] |= hidden_real[source:source + stop - start]
+            if is_long:                                 # one gap a draw
+                starts = np.array([_clear_start(starts[0], real_lengths[gaps[0]],
+                                                mask | long_real, rng)])
+            _hold_out(mask, hidden, hidden_real, starts, real_lengths[gaps], real_starts[gaps])
         held = mask & measured
         filled = np.asarray(fill(np.where(mask, np.nan, nee), hidden), dtype=float)
         error = np.where(held, filled - nee, 0.0)
@@ -1537,22 +1546,29 @@ def _donor_noise(inputs: UncertaintyInputs, codes, filled, interval_minutes) -> 
     return np.where(filled, share * np.square(np.nan_to_num(inputs.fill_noise_sigma)), 0.0)
 
 
-def _grouped_square(keys, groups, values) -> pd.Series:
-    """Σ over groups of (Σ values of the group within the period)², per period key."""
+def _grouped_square(codes, periods, groups, values) -> np.ndarray:
+    """Σ over groups of (Σ values of the group within the period)², per period.
+
+    `codes`: each record's period as a position in ``range(periods)``; `groups`: each
+    record's group (an integer >= 0; < 0: in none). Returns one value per period, 0 where
+    a period has no group.
+    """
     values = np.asarray(values, dtype=float)
     groups = np.asarray(groups)
-    use = np.isfinite(values) & (groups >= 0) & (values != 0)
+    out = np.zeros(periods)
+    # a record without a period (code -1) is left out, as groupby leaves out a missing key
+    use = np.isfinite(values) & (groups >= 0) & (values != 0) & (codes >= 0)
     if not use.any():
-        return pd.Series(0.0, index=pd.Index(pd.unique(np.asarray(keys))))
-    # one integer code per (period, group) pair: the same sums, in the same record order,
-    # as grouping on the two columns, without building a two-level index
-    key_codes, key_values = pd.factorize(np.asarray(keys)[use], sort=False)
-    use_key = key_codes >= 0                      # a missing key is left out, as groupby does
-    group_codes, group_values = pd.factorize(groups[use][use_key], sort=False)
-    pair = key_codes[use_key].astype(np.int64) * len(group_values) + group_codes
-    inner = pd.Series(values[use][use_key]).groupby(pair, sort=False).sum()
-    outer = np.square(inner).groupby(inner.index.to_numpy() // len(group_values)).sum()
-    return pd.Series(outer.to_numpy(), index=key_values[outer.index.to_numpy()])
+        return out
+    # one integer per (period, group) pair: the same sums, in the same record order, as
+    # grouping on the two columns, without building a two-level index
+    used_groups = groups[use].astype(np.int64)
+    span = int(used_groups.max()) + 1
+    pair = codes[use].astype(np.int64) * span + used_groups
+    inner = pd.Series(values[use]).groupby(pair, sort=False).sum()
+    outer = np.square(inner).groupby(inner.index.to_numpy() // span).sum()
+    out[outer.index.to_numpy()] = outer.to_numpy()
+    return out
 
 
 def ustar_sigma(sums: pd.DataFrame, percentiles) -> pd.Series:
@@ -1817,6 +1833,12 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
             nee_measured, is_night, fluxes["reco_nighttime"].to_numpy(float), other_driver_reco))
 
 
+def _nan_to_zero(values) -> np.ndarray:
+    """`values` with NaN as 0 (as Series.fillna(0.0); infinities kept)."""
+    values = np.asarray(values, dtype=float)
+    return np.where(np.isnan(values), 0.0, values)
+
+
 def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
                        ustar_percentiles=(16, 50, 84)) -> pd.DataFrame:
     """1-sigma parts and total uncertainty of every flux summed per period.
@@ -1969,12 +1991,13 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
 
     carbon = carbon_sums(fluxes)
 
+    # the parts are arrays in the order of `index` (the same element-wise arithmetic as on
+    # Series, without building a Series for every intermediate), a table at the end
     def per_period(values):
-        sums = pd.Series(np.asarray(values, dtype=float)).groupby(codes).sum()
-        return pd.Series(sums.to_numpy(), index=index)
+        return pd.Series(np.asarray(values, dtype=float)).groupby(codes).sum().to_numpy()
 
     def grouped(groups, values):
-        return _grouped_square(keys, groups, values).reindex(index).fillna(0.0)
+        return _grouped_square(codes, len(index), groups, values)
 
     measured = np.asarray(inputs.measured, dtype=bool)
     night = np.asarray(inputs.is_night, dtype=bool)
@@ -1985,8 +2008,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     out["nee_uncertainty_random"] = np.sqrt(random_var)
 
     model = inputs.gapfill_model
-    gap_var = gap_var_day = pd.Series(0.0, index=index)
-    bias = bias_se = pd.Series(0.0, index=index)
+    gap_var = gap_var_day = np.zeros(len(index))
+    bias = bias_se = np.zeros(len(index))
     gapfill_known = model is not None and not model[["bias", "independent_variance"]].isna().all().all()
     if gapfill_known:
         # the two classes' biases come from different artificial gaps (independent
@@ -2001,7 +2024,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
                                ("size_reference_long", np.nan)):  # before 0.13.0
             if column not in model:
                 model = model.assign(**{column: before})
-        by_class = {name: model[name].reindex(["night", "day"]).to_numpy(dtype=float)
+        night_day = model.reindex(["night", "day"])        # one row per class, night first
+        by_class = {name: night_day[name].to_numpy(dtype=float)
                     for name in ("bias", "bias_se", "independent_variance", "correlated_variance",
                                  "correlated_variance_long", "neighbour_covariance",
                                  "block_covariance_long", "size_reference_long")}
@@ -2068,7 +2092,7 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             size[where] = _fill_size(nee_filled[where], reference)
         gap_var, bias, bias_se = fill_variance(filled)
         gap_var_day = fill_variance(filled & ~night)[0]
-    unknown = pd.Series(np.nan, index=index)
+    unknown = np.full(len(index), np.nan)
     out["nee_uncertainty_gapfill"] = np.sqrt(gap_var) if gapfill_known else unknown
     out["gpp_nighttime_uncertainty_gapfill"] = np.sqrt(gap_var_day) if gapfill_known else unknown
     out["gpp_nighttime_uncertainty_random"] = np.sqrt(
@@ -2076,15 +2100,17 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     out["nee_uncertainty_gapfill_bias"] = bias if gapfill_known else unknown
     out["nee_uncertainty_gapfill_bias_se"] = bias_se if gapfill_known else unknown
 
-    run_sums = {name: carbon_sums(frame) for name, frame in inputs.runs.items()}
+    # the central run is the central fluxes (record_inputs): summed once
+    run_sums = {name: carbon if frame is fluxes else carbon_sums(frame)
+                for name, frame in inputs.runs.items()}
     ustar = {}
     for flux in _FLUXES:
         if run_sums:
             table = pd.DataFrame({name: s[flux].to_numpy() for name, s in run_sums.items()},
                                  index=index)
-            ustar[flux] = ustar_sigma(table, ustar_percentiles)
+            ustar[flux] = ustar_sigma(table, ustar_percentiles).to_numpy()
         else:
-            ustar[flux] = pd.Series(np.nan, index=index)
+            ustar[flux] = np.full(len(index), np.nan)
         out[f"{flux}_uncertainty_ustar"] = ustar[flux]
 
     reco_night = fluxes["reco_nighttime"].to_numpy(dtype=float)
@@ -2119,9 +2145,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         "reco_nighttime": np.sqrt(e0_part + night_rref * factor**2) if night_known else
         np.sqrt(e0_part),
         "reco_daytime": np.sqrt(day_rref) * factor if day_known else
-        pd.Series(np.nan, index=index),
+        np.full(len(index), np.nan),
         "gpp_daytime": np.sqrt(day_rref_gpp) * factor if day_known else
-        pd.Series(np.nan, index=index),
+        np.full(len(index), np.nan),
     }
     # nighttime GPP = Reco - NEE: at night both are estimates of the same night respiration
     # from the same night records, so only the part outside the night reaches it (Notes)
@@ -2131,40 +2157,41 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         out[f"{flux}_uncertainty_parameters"] = part
 
     # what each method's own quantified parts already explain of the difference
-    specific = {flux: np.square(part.fillna(0.0)) for flux, part in parameters.items()}
+    specific = {flux: np.square(_nan_to_zero(part)) for flux, part in parameters.items()}
     specific["gpp_nighttime"] = specific["gpp_nighttime"] \
         + np.square(out["gpp_nighttime_uncertainty_random"]) \
-        + np.square(out["gpp_nighttime_uncertainty_gapfill"].fillna(0.0))
+        + np.square(_nan_to_zero(out["gpp_nighttime_uncertainty_gapfill"]))
     method = {}
     for kind in ("gpp", "reco"):
-        difference = carbon[f"{kind}_daytime"] - carbon[f"{kind}_nighttime"]
+        difference = (carbon[f"{kind}_daytime"].to_numpy()
+                      - carbon[f"{kind}_nighttime"].to_numpy())
         excess = np.square(difference) - specific[f"{kind}_daytime"] \
             - specific[f"{kind}_nighttime"]
-        method[kind] = np.sqrt(np.maximum(excess, 0.0) / 2.0).where(difference.notna())
+        method[kind] = np.where(np.isnan(difference), np.nan,
+                                np.sqrt(np.maximum(excess, 0.0) / 2.0))
         out[f"{kind}_uncertainty_partitioning"] = method[kind]
     if inputs.driver_delta is not None:
-        driver = per_period(np.nan_to_num(inputs.driver_delta)).abs() * factor \
+        driver = np.abs(per_period(np.nan_to_num(inputs.driver_delta))) * factor \
             * np.sqrt(inputs.driver_weight)
     else:
-        driver = pd.Series(np.nan, index=index)
+        driver = np.full(len(index), np.nan)
     out["reco_uncertainty_temperature_driver"] = driver
     if inputs.form_delta is not None:
-        form_difference = per_period(np.nan_to_num(inputs.form_delta)).abs() * factor
+        form_difference = np.abs(per_period(np.nan_to_num(inputs.form_delta))) * factor
         form = form_difference * inputs.form_spread
         form_day = form_difference * np.sqrt(inputs.form_weight)   # daytime keeps Lloyd–Taylor
     else:
-        form = form_day = pd.Series(np.nan, index=index)
+        form = form_day = np.full(len(index), np.nan)
     out["reco_uncertainty_respiration_form"] = form
     out["reco_daytime_uncertainty_respiration_form"] = form_day
 
     def total(*parts):
         """√Σ part² per period over the parts it has; NaN where it has none."""
-        squares = np.square(np.stack([pd.Series(p, index=index).to_numpy(dtype=float)
-                                      for p in parts]))
+        squares = np.square(np.stack([np.asarray(p, dtype=float) for p in parts]))
         known = ~np.isnan(squares)
         # summed part after part, as DataFrame.sum(axis=1) sums its columns
         sums = np.where(known, squares, 0.0).sum(axis=0)
-        return pd.Series(np.sqrt(np.where(known.any(axis=0), sums, np.nan)), index=index)
+        return np.sqrt(np.where(known.any(axis=0), sums, np.nan))
 
     nee_parts = [out["nee_uncertainty_random"], out["nee_uncertainty_gapfill"], ustar["nee"]]
     out["nee_uncertainty_total"] = total(*nee_parts)
@@ -2178,7 +2205,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     out["gpp_daytime_uncertainty_total"] = total(
         ustar["gpp_daytime"], parameters["gpp_daytime"], method["gpp"], driver, form_day)
     for flux in _FLUXES:
-        out[f"{flux}_sigma"] = out[f"{flux}_uncertainty_total"].where(carbon[flux].notna())
+        out[f"{flux}_sigma"] = np.where(carbon[flux].isna().to_numpy(), np.nan,
+                                        out[f"{flux}_uncertainty_total"])
     return pd.DataFrame(out, index=index)
 
 
