@@ -65,7 +65,13 @@ from .timestamps import (
     join_time_columns,
     parse_stamps,
 )
-from .unit_checks import IMPLAUSIBLE_SHARE, implausible_message, mixup_messages
+from .unit_checks import (
+    IMPLAUSIBLE_SHARE,
+    implausible_message,
+    missing_code_hint,
+    mixup_messages,
+    most_repeated,
+)
 from .variables import (
     PPFD_PER_RG,
     READER_VARIABLES,
@@ -878,7 +884,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         if outside[name]:
             warnings.append(f"{name}: {outside[name]} value(s) outside the plausible range "
                             f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; "
-                            "screening will reject them")
+                            "screening will reject them"
+                            + _undeclared_code(values.get(name), converted[name], variable,
+                                               missing))
     report = ReadReport(
         source=", ".join(str(p) for p in paths),
         interval_minutes=interval_minutes,
@@ -1473,6 +1481,25 @@ def _check_header_line(text: str, delimiter: str, time_columns: tuple,
                 f"[input] time_column = {setting_text(time_columns[0])} is not in the header read from "
                 f"line {rows_before_header + 1} of {str(path)!r} but on line {number + 1}: set "
                 f"[input] rows_before_header = {number}")
+
+
+def _undeclared_code(raw, canonical, variable, missing) -> str:
+    """A hint where most implausible values of a column are one number: a missing code.
+
+    ``raw`` holds the column's values as read (before unit conversion), ``canonical``
+    the same records converted; the hint is given where one value makes up at least
+    half of the values outside ``variable``'s plausible range and occurs at least 3
+    times (our choice: a logger's undeclared code repeats exactly; a unit mix-up or a
+    faulty sensor spreads over many values).
+    """
+    if raw is None or len(raw) != len(canonical):
+        return ""
+    with np.errstate(invalid="ignore"):
+        outside = (canonical < variable.minimum) | (canonical > variable.maximum)
+    code, count = most_repeated(np.asarray(raw, dtype=float)[outside])
+    if count < 3 or count < 0.5 * outside.sum():
+        return ""
+    return missing_code_hint(code, count, missing)
 
 
 def _flag_key(column: str) -> str:

@@ -96,6 +96,21 @@ _TYPICAL_P90 = {"nee": (1.0, 50.0), "rg": (100.0, 1200.0), "tair": (5.0, 45.0),
                 "rh": (30.0, 100.0), "storage": (0.5, 20.0), "ppfd": (200.0, 2500.0)}
 
 
+
+def most_repeated(values) -> tuple[float, int]:
+    """The value that occurs most often in `values`, and how often (NaN, 0 if empty)."""
+    codes, counts = np.unique(np.asarray(values, dtype=float), return_counts=True)
+    if not counts.size:
+        return np.nan, 0
+    most = int(np.argmax(counts))
+    return float(codes[most]), int(counts[most])
+
+
+def missing_code_hint(code: float, count: int, missing) -> str:
+    """The hint that a repeated implausible value is an undeclared missing-data code."""
+    return (f"; the value {code:g} alone occurs {count} times: if it marks missing data, "
+            f"add it to [input] missing (now {list(missing)})")
+
 def _outside(name: str, values: np.ndarray) -> np.ndarray:
     variable = READER_VARIABLES[name]
     return (values < variable.minimum) | (values > variable.maximum)
@@ -153,14 +168,11 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
                f"{median:.4g} {variable.unit}")
     raw_present = file_values[np.isfinite(file_values)]
     outside_raw = raw_present[_outside(name, to_canonical(raw_present, name, unit))]
-    codes, counts = np.unique(outside_raw, return_counts=True)
-    code = codes[np.argmax(counts)] if counts.size else np.nan
+    code, count = most_repeated(outside_raw)
     # a missing-data code explains the problem when all else is plausible without it
     rest = present[raw_present != code]
-    if counts.size and counts.max() >= 3 and (
-            rest.size == 0 or _outside(name, rest).mean() <= IMPLAUSIBLE_SHARE):
-        return message + (f"; the value {code:g} alone occurs {counts.max()} times: if it "
-                          f"marks missing data, add it to [input] missing (now {list(missing)})")
+    if count >= 3 and (rest.size == 0 or _outside(name, rest).mean() <= IMPLAUSIBLE_SHARE):
+        return message + missing_code_hint(code, count, missing)
     better = _better_units(name, raw_present, unit)
     if better:
         return message + (f"; the values look like {better[0]!r}: set [input.units] {name} = "

@@ -869,6 +869,28 @@ def test_column_without_any_value_warns(tmp_path):
     assert any(w.startswith("tsoil: column 't_soil' has no values") for w in report.warnings)
 
 
+def test_undeclared_missing_code_is_named(tmp_path):
+    """Implausible values that are mostly one repeated number are named as a likely code.
+
+    -7999 in air temperature is far below the coldest air on record (-89.2 °C, Vostok
+    1983; WMO archive (m)); 20 records of it in 2000 are an undeclared missing code
+    (too few to refuse the column, see the refusal's own hint), while a few scattered
+    absurd values are not.
+    """
+    records = _records(periods=2000)
+    records.iloc[10:30, records.columns.get_loc("t_air")] = -7999
+    records.iloc[40, records.columns.get_loc("t_air")] = -300.5
+    frame, report = _read(_write(tmp_path / "t.csv", records), missing=(-9999,))
+    line = next(w for w in report.warnings if w.startswith("tair: 21 value(s) outside"))
+    assert "the value -7999 alone occurs 20 times" in line
+    assert "add it to [input] missing (now [-9999])" in line
+    scattered = _records(periods=2000)
+    scattered.iloc[[5, 50, 70], scattered.columns.get_loc("t_air")] = [-300.5, -400.2, 95.0]
+    _, report = _read(_write(tmp_path / "s.csv", scattered), missing=(-9999,))
+    line = next(w for w in report.warnings if w.startswith("tair: 3 value(s) outside"))
+    assert "missing code" not in line
+
+
 def test_units_line_under_header_hint(tmp_path):
     """A units line under the header fails on data row 1 with a hint about it."""
     path = _write(tmp_path / "t.csv", _records(periods=4))
