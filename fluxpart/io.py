@@ -1211,12 +1211,22 @@ def _file_sha256(path: Path) -> str:
     return digest.hexdigest()
 
 
+def _case_hint(path: Path) -> str:
+    """A hint naming a file of the folder whose name differs from `path`'s only in case."""
+    try:
+        same = [p.name for p in path.parent.iterdir() if p.name.lower() == path.name.lower()]
+    except OSError:
+        return ""
+    return (f"; the folder has {same[0]!r}, which differs only in upper and lower case "
+            "(file names are case-sensitive here)" if same else "")
+
+
 def _decode(path: Path, encoding) -> tuple[str, str]:
     """Return the file's text and the encoding used (detected if `encoding` is None)."""
     if not path.exists():
         hint = ("; write the path with forward slashes ('/'), which work on every system: "
                 "a backslash is part of the file name outside Windows" if "\\" in str(path)
-                else "")
+                else _case_hint(path))
         raise InputFileError(f"[input] path: input file {str(path)!r} does not exist{hint}")
     if not path.is_file():
         raise InputFileError(f"[input] path: {str(path)!r} is not a file")

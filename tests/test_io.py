@@ -480,6 +480,14 @@ def test_unit_for_unread_variable(tmp_path):
 # ----------------------------------------------------------------------------- bad files
 
 
+def test_input_file_named_in_other_case_is_hinted(tmp_path):
+    """A path that differs from the file's name only in letter case names the file."""
+    _write(tmp_path / "m39.csv", _records(periods=4))
+    with pytest.raises(InputFileError, match=r"M39.CSV.*does not exist; the folder has "
+                                             r"'m39.csv', which differs only in upper and lower"):
+        _read(tmp_path / "M39.CSV")
+
+
 def test_input_file_missing(tmp_path):
     """A missing record file names the path and the setting."""
     with pytest.raises(InputFileError, match=r"\[input\] path.*nothing.csv.*does not exist"):
