@@ -68,6 +68,7 @@ from .schema import units_for_table
 from .store import (
     atomic_write_bytes,
     file_sha256,
+    folder_mode,
     read_table,
     remove_stale,
     unreadable,
@@ -104,9 +105,6 @@ _NETWORK_FORMAT = "fluxpart-network/1"
 
 _BATCH_KEYS = ("out", "sites")
 _DEFAULT_WORKERS = 2
-#: Mode of the network dataset folders: shared like the result folders (readable by all,
-#: writable by the owner); ``tempfile.mkdtemp`` would leave them private (0700).
-_DIR_MODE = 0o755
 _CONNECT_TIMEOUT_SECONDS = 10
 _RESERVED_KEYS = {*NETWORK_DATASETS.values(), FAILURES_FILE, NETWORK_SEAL}
 _SITE_COLUMNS = {
@@ -563,7 +561,7 @@ def _write_network(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFrame]:
         staging = Path(tempfile.mkdtemp(prefix=f".{folder}.", dir=out))
         files[folder] = {}
         try:
-            os.chmod(staging, _DIR_MODE)
+            os.chmod(staging, folder_mode())  # mkdtemp makes it private (0700)
             tables = _unify([_arrow_site(o, name) for o in done], name) if done else []
             for outcome, table in zip(done, tables, strict=True):
                 data = _parquet_bytes(table)

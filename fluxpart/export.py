@@ -51,7 +51,7 @@ import pandas as pd
 
 from .errors import FluxpartError, InputFileError, OutputError
 from .manifest import recorded_paths
-from .store import remove_stale
+from .store import file_mode, remove_stale
 from .units import KG_CARBON_PER_UMOL
 
 __all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf",
@@ -360,7 +360,7 @@ def write_netcdf(result, path) -> Path:
     os.close(handle)
     try:
         dataset.to_netcdf(temporary, engine=engine, format="NETCDF4")
-        os.chmod(temporary, 0o644)
+        os.chmod(temporary, file_mode())
         os.replace(temporary, path)
     except OSError as error:        # a full disk, the file-size limit (ulimit -f), an I/O error
         Path(temporary).unlink(missing_ok=True)

@@ -64,6 +64,7 @@ from .manifest import (
 from .store import (
     atomic_write_bytes,
     file_sha256,
+    folder_mode,
     read_table,
     table_shape,
     unreadable,
@@ -78,7 +79,6 @@ __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_lefto
 DEFAULT_LOCK_TIMEOUT = 600.0
 _STAGING = "staging-"
 _RETIRED = "retired-"
-_DIR_MODE = 0o755
 #: Times a writer that locked a deleted lock file locks again before it gives up checking.
 _RELOCK_TRIES = 5
 
@@ -352,7 +352,7 @@ def make_staging(directory) -> Path:
     staging = Path(tempfile.mkdtemp(prefix=f".{directory.name}.{_STAGING}",
                                     dir=directory.parent))
     try:
-        os.chmod(staging, _DIR_MODE)
+        os.chmod(staging, folder_mode())
     except OSError:
         shutil.rmtree(staging, ignore_errors=True)
         raise

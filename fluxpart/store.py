@@ -38,16 +38,41 @@ import pyarrow.parquet as pq
 
 from .errors import InputFileError
 
-__all__ = ["atomic_write_bytes", "column_units", "file_sha256", "read_table", "remove_stale",
-           "table_shape", "unreadable", "write_table"]
+__all__ = ["atomic_write_bytes", "column_units", "file_mode", "file_sha256", "folder_mode",
+           "read_table", "remove_stale", "table_shape", "unreadable", "write_table"]
 
 _SCHEMA_KEY = b"fluxpart"
 #: Facts of a frame's ``attrs`` that travel into the file metadata (set by the
 #: pipeline and by :func:`read_table`; see :func:`fluxpart.schema.with_metadata`).
 _CARRIED = ("site", "interval_minutes", "time_convention")
-# Result files are meant to be shared: readable by all, writable by the owner
-# (mkstemp would leave them 0600).
-_FILE_MODE = 0o644
+
+
+def _umask() -> int:
+    """The process's file-mode creation mask, read without changing it where Linux allows."""
+    try:
+        with open("/proc/self/status", encoding="ascii") as status:
+            for line in status:
+                if line.startswith("Umask:"):
+                    return int(line.split()[1], 8)
+    except (OSError, ValueError):
+        pass
+    mask = os.umask(0o022)      # elsewhere: set and restore (no other thread writes yet)
+    os.umask(mask)
+    return mask
+
+
+def file_mode() -> int:
+    """Mode of a written result file: what ``open`` would give, 0o666 less the umask.
+
+    ``tempfile.mkstemp`` creates private files (0o600), and a fixed 0o644 would ignore a
+    user's umask both ways (group-writable for 0o002, private for 0o077).
+    """
+    return 0o666 & ~_umask()
+
+
+def folder_mode() -> int:
+    """Mode of a written result folder: what ``mkdir`` would give, 0o777 less the umask."""
+    return 0o777 & ~_umask()
 
 
 def unreadable(path, error: OSError) -> InputFileError:
@@ -142,7 +167,7 @@ def atomic_write_bytes(path, data: bytes) -> None:
             stream.write(data)
             stream.flush()
             os.fsync(stream.fileno())
-        os.chmod(temporary, _FILE_MODE)
+        os.chmod(temporary, file_mode())
         os.replace(temporary, path)
     except BaseException:
         Path(temporary).unlink(missing_ok=True)

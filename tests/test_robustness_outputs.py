@@ -4,12 +4,15 @@ Contracts checked (README "Command line", "Output files", "Audit workflow"): a u
 error is one ``error:`` line and exit 2 with nothing written; a result folder holds
 only the files its manifest lists; result files are meant to be shared. External
 facts: POSIX permission bits (``stat.S_IMODE``; 0o755 = owner rwx, group and others
-r-x), CF-1.10 (Eaton et al. 2022) where named.
+r-x; a new file or folder gets 0o666 or 0o777 less the process's umask, POSIX
+``open`` / ``mkdir``), CF-1.10 (Eaton et al. 2022) where named.
 """
 
 import json
+import os
 import shutil
 import stat
+from contextlib import contextmanager
 
 import pytest
 from bundles import make_bundle
@@ -59,6 +62,15 @@ def test_batch_out_in_a_result_folder_is_refused_before_any_work(written_demo, t
     assert check_folder(result, read_manifest(result)) == []
 
 
+@contextmanager
+def _umask(mask):
+    previous = os.umask(mask)
+    try:
+        yield
+    finally:
+        os.umask(previous)
+
+
 def test_network_dataset_folders_are_readable_by_others(written_demo, tmp_path):
     """The network datasets were left 0700 by mkdtemp while the site folders are 0755."""
     from fluxpart import batch
@@ -70,9 +82,24 @@ def test_network_dataset_folders_are_readable_by_others(written_demo, tmp_path):
                                 annual=read_table(folder / "annual.parquet"))
     out = tmp_path / "network"
     out.mkdir()
-    batch._write_network([outcome], out)
+    with _umask(0o022):
+        batch._write_network([outcome], out)
     for name in batch.NETWORK_DATASETS.values():
         assert stat.S_IMODE((out / name).stat().st_mode) == 0o755, name
+
+
+@pytest.mark.parametrize(("mask", "folder", "file"), [(0o022, 0o755, 0o644),
+                                                      (0o077, 0o700, 0o600),
+                                                      (0o002, 0o775, 0o664)])
+def test_result_modes_follow_the_umask(tmp_path, mask, folder, file):
+    """A private umask keeps the result private; a group-writable one shares it."""
+    with _umask(mask):
+        process_site_config(make_bundle(tmp_path)).write(tmp_path / "out")
+    out = tmp_path / "out"
+    assert stat.S_IMODE(out.stat().st_mode) == folder
+    for path in out.iterdir():
+        if path.is_file() and not path.name.startswith("."):
+            assert stat.S_IMODE(path.stat().st_mode) == file, path.name
 
 
 @pytest.fixture(scope="module")
