@@ -673,9 +673,10 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
     for members, course_from_all in zip(classes, course_classes, strict=True):
         donors = measured & members
         remaining = gaps & members
-        if not donors.any() or not remaining.any():
-            continue
         course_donors = measured if course_from_all else donors
+        # a day gap with no day record measured can still take night records
+        if not course_donors.any() or not remaining.any():
+            continue
         outputs = _fill_class(values, donors, remaining, passes, per_day, diurnal_records,
                               all_conditions, radiation_condition, min_donors, course_donors)
         for filled, step, half_width_days, pass_mean, pass_count, pass_spread in outputs:

@@ -295,6 +295,28 @@ def test_day_gap_diurnal_course_takes_both_classes_and_weighs_offsets_alike():
     assert out2["value"].iloc[night_gap] == pytest.approx(3.0)
 
 
+@pytest.mark.parametrize("minutes", [30, 60])
+def test_day_gap_without_any_day_record_takes_night_records(minutes):
+    """The diurnal course of a day gap takes night records even where no day record exists.
+
+    Only two night records are measured, one on each side of the day gap within ±1 h;
+    the day class has no measured record at all. The fill is the mean of the two
+    offsets' means, (2 + 4) / 2 = 3. In 0.14.0 the day class was skipped when it
+    had no record of its own, and the gap stayed unfilled.
+    """
+    per_day = 1440 // minutes
+    n = 3 * per_day
+    gap = per_day + per_day // 4                           # day 1, 06:00
+    values = np.full(n, np.nan)
+    values[[gap - 1, gap + 1]] = [2.0, 4.0]
+    is_night = np.ones(n, dtype=bool)
+    is_night[gap] = False
+    out = fill_marginal(values, _drivers(n), _index(n, minutes=minutes), is_night=is_night)
+    row = out.iloc[gap]
+    assert row["value"] == pytest.approx(3.0)
+    assert (row["method"], row["count"], row["window_days"]) == (3, 2, 1.0)
+
+
 def test_diurnal_course_hourly_takes_one_record_each_side():
     """Hourly data: ±1 h is ±1 record."""
     values = np.array([1.0, 2.0, 4.0, np.nan, 8.0, 16.0])
