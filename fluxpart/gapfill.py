@@ -890,7 +890,8 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
     -----
     The pass sequence, window conventions and quality rule are in the module
     docstring. With separate donors, each class (night, day) runs the whole pass
-    sequence on its own records. Inputs are not modified.
+    sequence on its own records, except that the diurnal course of a day gap takes the
+    records of both classes. Inputs are not modified.
 
     References
     ----------
