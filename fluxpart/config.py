@@ -133,7 +133,7 @@ class Config:
         ``"similar_conditions_only"``: any record within the
         similarity tolerances, the single rule of Reichstein et al. (2005), under
         which twilight records with photosynthesis fill night gaps and bias annual
-        NEE low (issue 11: median −17.5 g C m-2 on the demo).
+        NEE low (median −17.0 g C m-2 on demo seeds 0–5, `bench_gapfill.py --accuracy`).
     gapfill_rg_window : str
         The radiation window of the NEE gap-filling similarity steps.
         ``"centred"`` (default, new in 0.8.0): with separate day and night donors,
