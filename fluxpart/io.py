@@ -876,6 +876,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             warnings.append(f"{name}: column {mapping[name]!r} has no values at all "
                             "(every cell empty or a missing code)")
     outside = {}
+    raw_of = {"rg": "ppfd"} if "rg" in derived else {}  # the file column a code is written in
     for name in order:
         variable = VARIABLES[name]
         column = frame[name].to_numpy()
@@ -885,8 +886,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             warnings.append(f"{name}: {outside[name]} value(s) outside the plausible range "
                             f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; "
                             "screening will reject them"
-                            + _undeclared_code(values.get(name), converted[name], variable,
-                                               missing))
+                            + _undeclared_code(values.get(raw_of.get(name, name)),
+                                               converted[name], variable, missing))
     report = ReadReport(
         source=", ".join(str(p) for p in paths),
         interval_minutes=interval_minutes,

@@ -1376,6 +1376,21 @@ def test_ppfd_converted_to_rg(tmp_path):
     assert "rg" in report.derived and "ppfd" not in frame.columns
 
 
+def test_undeclared_missing_code_in_ppfd_is_named(tmp_path):
+    """An undeclared code in a PPFD column that rg is derived from is named as written.
+
+    -7999 µmol m-2 s-1 is -3805 W m-2 of rg, far below any radiation; the warning names
+    the file's value, -7999, which is what [input] missing must hold.
+    """
+    records = _records(periods=2000)
+    records["par"] = records.pop("sw_in") * 2.1022
+    records.iloc[10:30, records.columns.get_loc("par")] = -7999
+    mapping = {k: v for k, v in MAPPING.items() if k != "rg"} | {"ppfd": "par"}
+    _, report = _read(_write(tmp_path / "t.csv", records), columns=mapping, missing=(-9999,))
+    line = next(w for w in report.warnings if w.startswith("rg: 20 value(s) outside"))
+    assert "the value -7999 alone occurs 20 times" in line
+
+
 @pytest.mark.parametrize("encoding", ["utf-16", "utf-16-le", "utf-8-sig", "latin-1"])
 def test_encodings(tmp_path, encoding):
     """UTF-16 (with or without byte-order mark) and UTF-8 with BOM are detected; Latin-1
