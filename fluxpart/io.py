@@ -1213,9 +1213,14 @@ def _file_sha256(path: Path) -> str:
 
 
 def _case_hint(path: Path) -> str:
-    """A hint naming a file of the folder whose name differs from `path`'s only in case."""
+    """A hint naming a file of the folder whose name differs from `path`'s only in case.
+
+    Of several such files the first in sorted order is named, so the message does not
+    depend on the order the folder lists its entries in.
+    """
     try:
-        same = [p.name for p in path.parent.iterdir() if p.name.lower() == path.name.lower()]
+        same = sorted(p.name for p in path.parent.iterdir()
+                      if p.name.lower() == path.name.lower())
     except OSError:
         return ""
     return (f"; the folder has {same[0]!r}, which differs only in upper and lower case "

@@ -488,6 +488,14 @@ def test_input_file_named_in_other_case_is_hinted(tmp_path):
         _read(tmp_path / "M39.CSV")
 
 
+def test_case_hint_names_the_first_of_several_in_sorted_order(tmp_path):
+    """Three files differ from the path only in case: the message names the first sorted."""
+    for name in ("m39.csv", "M39.csv", "m39.Csv"):
+        _write(tmp_path / name, _records(periods=4))
+    with pytest.raises(InputFileError, match=r"the folder has 'M39.csv', which differs"):
+        _read(tmp_path / "m39.CSV")
+
+
 def test_input_file_missing(tmp_path):
     """A missing record file names the path and the setting."""
     with pytest.raises(InputFileError, match=r"\[input\] path.*nothing.csv.*does not exist"):
