@@ -120,9 +120,12 @@ from trial_scoring import (  # this folder
     FLUXES,
     TRUTH_OF,
     check_and_run,
-    misses,
     print_flux_summary,
+    print_flux_table,
+    print_warnings_and_misses,
     save_scores,
+    summary_cells,
+    summary_header,
 )
 
 G_C_PER_UMOL = 12.011e-6  # g C per umol C; standard atomic weight of carbon 12.011 g mol-1
@@ -721,12 +724,7 @@ def print_row(row):
           f"{row['records_truth']}; complete {row['complete']}; measured "
           f"{row['share_measured']:.2f}; gaps night {100 * row['gap_night_share']:.0f} % / day "
           f"{100 * row['gap_day_share']:.0f} %)")
-    print(f"   {'flux':15s} {'est':>9s} {'truth':>9s} {'err':>8s} {'rel %':>7s} "
-          f"{'+-95%':>7s} in")
-    for f in FLUXES:
-        print(f"   {f:15s} {row[f]:9.1f} {row[f + '_true']:9.1f} {row[f + '_err']:+8.1f} "
-              f"{row[f + '_rel']:+7.1f} {row[f + '_halfwidth']:7.1f} "
-              f"{'yes' if row[f + '_in'] else 'NO'}")
+    print_flux_table(row)
     print(f"   u* found {row['ustar_found']:.3f} (applied max {row['ustar_applied_max']:.3f}) vs "
           f"planted median {row['ustar_planted']:.3f} (leafy {row['ustar_planted_leafy']:.3f}): "
           f"{row['ustar_rel']:+.0f} %; nights below planted {100 * row['night_below_thr']:.0f} %")
@@ -743,26 +741,14 @@ def print_row(row):
           "{reco_nighttime_day_err:+.1f}; daytime {reco_daytime_night_err:+.1f} / "
           "{reco_daytime_day_err:+.1f}; true autotrophic day excess over its night level "
           "{ra_day_excess:+.1f}".format(**row))
-    print(f"   check exit {row['check_rc']}; warnings ({len(row['warnings'])}):")
-    for w in row["warnings"]:
-        print(f"     - {w[:230]}")
-    m = misses(row)
-    print(f"   MISSES: {'; '.join(m) if m else 'none'}")
+    print_warnings_and_misses(row)
 
 
 def summary(rows):
-    print("\n=========== summary (FICTIONAL sites) ===========")
-    print(f"{'site-year':9s} {'NEE err':>8s} {'in':>3s} {'GPPn %':>7s} {'in':>3s} "
-          f"{'Recn %':>7s} {'in':>3s} {'GPPd %':>7s} {'in':>3s} {'Recd %':>7s} {'in':>3s} "
-          f"{'u* fnd':>6s} {'plant':>6s} {'u* %':>5s}")
+    print(summary_header(9) + f" {'u* fnd':>6s} {'plant':>6s} {'u* %':>5s}")
     for r in rows:
-        yn = {f: "y" if r[f + "_in"] else "N" for f in FLUXES}.get
-        print(f"{r['site_year']:9s} {r['nee_err']:+8.1f} {yn('nee'):>3s} "
-              f"{r['gpp_nighttime_rel']:+7.1f} {yn('gpp_nighttime'):>3s} "
-              f"{r['reco_nighttime_rel']:+7.1f} {yn('reco_nighttime'):>3s} "
-              f"{r['gpp_daytime_rel']:+7.1f} {yn('gpp_daytime'):>3s} "
-              f"{r['reco_daytime_rel']:+7.1f} {yn('reco_daytime'):>3s} "
-              f"{r['ustar_found']:6.3f} {r['ustar_planted']:6.3f} {r['ustar_rel']:+5.0f}")
+        print(summary_cells(r, 9) + f" {r['ustar_found']:6.3f} {r['ustar_planted']:6.3f} "
+              f"{r['ustar_rel']:+5.0f}")
     print_flux_summary(rows)
 
 

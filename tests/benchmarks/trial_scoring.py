@@ -95,3 +95,39 @@ def save_scores(rows, out):
 
     keep = [{k: v for k, v in r.items() if k != "warnings"} for r in rows]
     pd.DataFrame(keep).to_csv(Path(out) / "scores.csv", index=False)
+
+
+def print_flux_table(row):
+    """Print a scored row's estimate, truth, error and interval per flux."""
+    print(f"   {'flux':15s} {'est':>9s} {'truth':>9s} {'err':>8s} {'rel %':>7s} "
+          f"{'+-95%':>7s} in")
+    for f in FLUXES:
+        print(f"   {f:15s} {row[f]:9.1f} {row[f + '_true']:9.1f} {row[f + '_err']:+8.1f} "
+              f"{row[f + '_rel']:+7.1f} {row[f + '_halfwidth']:7.1f} "
+              f"{'yes' if row[f + '_in'] else 'NO'}")
+
+
+def print_warnings_and_misses(row):
+    """Print the check's exit code, the run's warnings and the targets the row misses."""
+    print(f"   check exit {row['check_rc']}; warnings ({len(row['warnings'])}):")
+    for w in row["warnings"]:
+        print(f"     - {w[:230]}")
+    m = misses(row)
+    print(f"   MISSES: {'; '.join(m) if m else 'none'}")
+
+
+def summary_header(width):
+    """The summary table's first columns: site-year and each flux's error and coverage."""
+    return (f"\n=========== summary (FICTIONAL sites) ===========\n{'site-year':{width}s} "
+            f"{'NEE err':>8s} {'in':>3s} {'GPPn %':>7s} {'in':>3s} {'Recn %':>7s} {'in':>3s} "
+            f"{'GPPd %':>7s} {'in':>3s} {'Recd %':>7s} {'in':>3s}")
+
+
+def summary_cells(r, width):
+    """A row's first summary cells (the columns of :func:`summary_header`)."""
+    yn = {f: "y" if r[f + "_in"] else "N" for f in FLUXES}.get
+    return (f"{r['site_year']:{width}s} {r['nee_err']:+8.1f} {yn('nee'):>3s} "
+            f"{r['gpp_nighttime_rel']:+7.1f} {yn('gpp_nighttime'):>3s} "
+            f"{r['reco_nighttime_rel']:+7.1f} {yn('reco_nighttime'):>3s} "
+            f"{r['gpp_daytime_rel']:+7.1f} {yn('gpp_daytime'):>3s} "
+            f"{r['reco_daytime_rel']:+7.1f} {yn('reco_daytime'):>3s}")

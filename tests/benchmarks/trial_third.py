@@ -108,9 +108,12 @@ from trial_scoring import (  # this folder
     FLUXES,
     TRUTH_OF,
     check_and_run,
-    misses,
     print_flux_summary,
+    print_flux_table,
+    print_warnings_and_misses,
     save_scores,
+    summary_cells,
+    summary_header,
 )
 
 G_C_PER_UMOL = 12.011e-6  # g C per umol C; standard atomic weight of carbon 12.011 g mol-1
@@ -661,38 +664,19 @@ def print_row(row):
     print(f"\n== {row['site_year']} ({row['year']}; records {row['records']} / truth "
           f"{row['records_truth']}; complete {row['complete']}; measured "
           f"{row['share_measured']:.2f}; Reco driver {row['driver']})")
-    print(f"   {'flux':15s} {'est':>9s} {'truth':>9s} {'err':>8s} {'rel %':>7s} "
-          f"{'+-95%':>7s} in")
-    for f in FLUXES:
-        print(f"   {f:15s} {row[f]:9.1f} {row[f + '_true']:9.1f} {row[f + '_err']:+8.1f} "
-              f"{row[f + '_rel']:+7.1f} {row[f + '_halfwidth']:7.1f} "
-              f"{'yes' if row[f + '_in'] else 'NO'}")
+    print_flux_table(row)
     print(f"   u* found {row['ustar_found']:.3f} (detected {row['ustar_detected']:.3f}) vs "
           f"planted median {row['ustar_planted']:.3f} (max {row['ustar_planted_max']:.3f}): "
           f"{row['ustar_rel']:+.0f} %; nights below planted {100 * row['night_below_thr']:.0f} %")
     print(f"   monthly NEE within +-1.96 sigma: {row['months_in']} of {row['months']}")
-    print(f"   check exit {row['check_rc']}; warnings ({len(row['warnings'])}):")
-    for w in row["warnings"]:
-        print(f"     - {w[:230]}")
-    m = misses(row)
-    print(f"   MISSES: {'; '.join(m) if m else 'none'}")
+    print_warnings_and_misses(row)
 
 
 def summary(rows):
-    print("\n=========== summary (FICTIONAL sites) ===========")
-    hdr = (f"{'site-year':10s} {'NEE err':>8s} {'in':>3s} {'GPPn %':>7s} {'in':>3s} "
-           f"{'Recn %':>7s} {'in':>3s} {'GPPd %':>7s} {'in':>3s} {'Recd %':>7s} {'in':>3s} "
-           f"{'u* %':>5s} {'months':>7s} {'warn':>4s}")
-    print(hdr)
+    print(summary_header(10) + f" {'u* %':>5s} {'months':>7s} {'warn':>4s}")
     for r in rows:
-        yn = {f: "y" if r[f + "_in"] else "N" for f in FLUXES}.get
-        print(f"{r['site_year']:10s} {r['nee_err']:+8.1f} {yn('nee'):>3s} "
-              f"{r['gpp_nighttime_rel']:+7.1f} {yn('gpp_nighttime'):>3s} "
-              f"{r['reco_nighttime_rel']:+7.1f} {yn('reco_nighttime'):>3s} "
-              f"{r['gpp_daytime_rel']:+7.1f} {yn('gpp_daytime'):>3s} "
-              f"{r['reco_daytime_rel']:+7.1f} {yn('reco_daytime'):>3s} "
-              f"{r['ustar_rel']:+5.0f} {r['months_in']:>3d}/{r['months']:<3d} "
-              f"{len(r['warnings']):>4d}")
+        print(summary_cells(r, 10) + f" {r['ustar_rel']:+5.0f} "
+              f"{r['months_in']:>3d}/{r['months']:<3d} {len(r['warnings']):>4d}")
     print_flux_summary(rows)
     mi = sum(r["months_in"] for r in rows)
     mt = sum(r["months"] for r in rows)
