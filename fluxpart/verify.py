@@ -59,6 +59,9 @@ verification.
 from __future__ import annotations
 
 import json
+import os
+import re
+import shutil
 import tempfile
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -795,6 +798,51 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
 
 # --------------------------------------------------------------------------- public
 
+
+#: Name of a rerun's scratch folder in the system's temporary folder: prefix, the
+#: verifying process's id, a random part.
+_SCRATCH_PREFIX = "fluxpart-verify-"
+_SCRATCH = re.compile(rf"{re.escape(_SCRATCH_PREFIX)}(\d+)-")
+
+
+def _alive(pid: int) -> bool:
+    """Whether a process with id `pid` exists (one of another user counts as alive)."""
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except (PermissionError, OverflowError):
+        return True
+    return True
+
+
+def remove_dead_scratch(root=None) -> list[str]:
+    """Remove rerun scratch folders that a killed ``verify`` left behind.
+
+    A folder is removed only where its name carries the id of a process that no longer
+    exists and it belongs to the current user: a verify running now, or another user's,
+    keeps its folder. Returns the names removed.
+    """
+    root = Path(tempfile.gettempdir() if root is None else root)
+    removed = []
+    try:
+        entries = list(root.iterdir())
+    except OSError:
+        return removed
+    for entry in entries:
+        match = _SCRATCH.match(entry.name)
+        if not match or _alive(int(match[1])):
+            continue
+        try:
+            if entry.is_symlink() or not entry.is_dir() or entry.stat().st_uid != os.getuid():
+                continue
+        except OSError:
+            continue
+        shutil.rmtree(entry, ignore_errors=True)
+        if not entry.exists():
+            removed.append(entry.name)
+    return removed
+
 def verify(directory, *, input_path=None, config_path=None, exact: bool = False
            ) -> VerifyReport:
     """Recompute a result folder from its manifest and compare everything.
@@ -885,7 +933,8 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                      "covered by the manifest's hashes, so they are not verified; redraw them "
                      "from the verified tables with `fluxpart report` rather than trusting a "
                      "received page")
-    with tempfile.TemporaryDirectory(prefix="fluxpart-verify-") as scratch:
+    remove_dead_scratch()
+    with tempfile.TemporaryDirectory(prefix=f"{_SCRATCH_PREFIX}{os.getpid()}-") as scratch:
         scratch = Path(scratch)
         try:
             source, result, input_differences = _recompute(directory, manifest, input_path,

@@ -7,7 +7,10 @@ contract (DESIGN.md §4.1): exit 0 bit-identical or within rounding, 1 otherwise
 """
 
 import json
+import os
 import shutil
+import subprocess
+import sys
 from pathlib import Path
 
 import numpy as np
@@ -24,7 +27,7 @@ from fluxpart.errors import InputFileError
 from fluxpart.manifest import manifest_seal
 from fluxpart.pipeline import process, process_site_config
 from fluxpart.store import file_sha256, read_table
-from fluxpart.verify import ROUNDING_TOLERANCE, compare_tables, verify
+from fluxpart.verify import ROUNDING_TOLERANCE, compare_tables, remove_dead_scratch, verify
 
 
 @pytest.fixture(scope="module")
@@ -515,3 +518,20 @@ def test_verify_says_the_report_folder_is_not_verified(bundle, tmp_path, capsys)
     assert main(["verify", str(copy / "out")]) == 0
     out = capsys.readouterr().out
     assert "note: report/: the page and its figures" in out and "not verified" in out
+
+
+def test_a_killed_verify_leaves_no_scratch_for_long(tmp_path):
+    """A verify killed mid-rerun (SIGKILL) left its scratch folder in the temporary
+    folder for good; the next verify removes the folders of processes that no longer
+    exist (POSIX kill(pid, 0) probes a process id), and keeps a running one's."""
+    finished = subprocess.run([sys.executable, "-c", "import os; print(os.getpid())"],
+                              capture_output=True, text=True, check=True)
+    dead = tmp_path / f"fluxpart-verify-{int(finished.stdout)}-x1y2"
+    (dead / "out").mkdir(parents=True)
+    (dead / "out" / "annual.parquet").write_bytes(b"partial")
+    running = tmp_path / f"fluxpart-verify-{os.getpid()}-a3b4"
+    running.mkdir()
+    other = tmp_path / "fluxpart-verify-notanumber"
+    other.mkdir()
+    assert remove_dead_scratch(tmp_path) == [dead.name]
+    assert not dead.exists() and running.exists() and other.exists()
