@@ -886,8 +886,12 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             warnings.append(f"{name}: {outside[name]} value(s) outside the plausible range "
                             f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; "
                             "screening will reject them"
-                            + _undeclared_code(values.get(raw_of.get(name, name)),
-                                               converted[name], variable, missing))
+                            + (_undeclared_code(values.get(raw_of.get(name, name)),
+                                                converted[name], variable, missing)
+                               or (name == "nee" and "storage" in values and _undeclared_code(
+                                   values["storage"], converted[name], variable, missing,
+                                   column="storage"))
+                               or ""))
     report = ReadReport(
         source=", ".join(str(p) for p in paths),
         interval_minutes=interval_minutes,
@@ -1499,14 +1503,15 @@ def _check_header_line(text: str, delimiter: str, time_columns: tuple,
                 f"[input] rows_before_header = {number}")
 
 
-def _undeclared_code(raw, canonical, variable, missing) -> str:
+def _undeclared_code(raw, canonical, variable, missing, column=None) -> str:
     """A hint where most implausible values of a column are one number: a missing code.
 
     ``raw`` holds the column's values as read (before unit conversion), ``canonical``
     the same records converted; the hint is given where one value makes up at least
     half of the values outside ``variable``'s plausible range and occurs at least 3
     times (our choice: a logger's undeclared code repeats exactly; a unit mix-up or a
-    faulty sensor spreads over many values).
+    faulty sensor spreads over many values). ``column`` names the file column the
+    raw values come from where it is not the variable's own (the storage column of NEE).
     """
     if raw is None or len(raw) != len(canonical):
         return ""
@@ -1515,7 +1520,8 @@ def _undeclared_code(raw, canonical, variable, missing) -> str:
     code, count = most_repeated(np.asarray(raw, dtype=float)[outside])
     if count < 3 or count < 0.5 * outside.sum():
         return ""
-    return missing_code_hint(code, count, missing)
+    return missing_code_hint(code, count, missing,
+                             f" in the {column} column" if column else "")
 
 
 def _flag_key(column: str) -> str:

@@ -106,10 +106,14 @@ def most_repeated(values) -> tuple[float, int]:
     return float(codes[most]), int(counts[most])
 
 
-def missing_code_hint(code: float, count: int, missing) -> str:
-    """The hint that a repeated implausible value is an undeclared missing-data code."""
-    return (f"; the value {code:g} alone occurs {count} times: if it marks missing data, "
-            f"add it to [input] missing (now {list(missing)})")
+def missing_code_hint(code: float, count: int, missing, place: str = "") -> str:
+    """The hint that a repeated implausible value is an undeclared missing-data code.
+
+    ``place`` names where the value is written where that is not the column named at
+    the start of the message (e.g. ``" in the storage column"``).
+    """
+    return (f"; the value {code:g} alone occurs {count} times{place}: if it marks missing "
+            f"data, add it to [input] missing (now {list(missing)})")
 
 def _outside(name: str, values: np.ndarray) -> np.ndarray:
     variable = READER_VARIABLES[name]

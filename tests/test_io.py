@@ -1345,6 +1345,19 @@ def test_storage_added_to_turbulent_flux(tmp_path):
     assert report.columns["nee"] == "co2_turb + sc (storage)"
 
 
+def test_undeclared_missing_code_in_the_storage_column_is_named(tmp_path):
+    """NEE is the turbulent flux plus storage: a code in the storage column makes the sum
+    implausible, and the hint names the storage column (the turbulent values are fine)."""
+    records = _records(periods=2000)
+    records["co2_turb"] = records.pop("co2_flux")
+    records["sc"] = 0.1
+    records.iloc[100:130, records.columns.get_loc("sc")] = -7999
+    _, report = _read(_write(tmp_path / "t.csv", records), missing=(-9999,),
+                      columns=MAPPING | {"nee": "co2_turb", "storage": "sc"})
+    line = next(w for w in report.warnings if w.startswith("nee: 30 value(s) outside"))
+    assert "the value -7999 alone occurs 30 times in the storage column" in line
+
+
 def test_storage_column_without_values_is_named(tmp_path):
     """A storage column holding only missing codes leaves no record with NEE; the error names
     the storage column (it blamed the NEE column, which holds values)."""
