@@ -154,6 +154,19 @@ class Config:
         interpolation (quality ``"interpolated"``); 0 turns it off. 3 h, our choice:
         these drivers change smoothly over hours (issue 11: 0.8–0.9 K RMSE against
         3.1–3.5 K for radiation-similarity fills).
+    gapfill_clearness_tolerance : float
+        NEE gap filling: where above 0, the all-driver and radiation steps also
+        require a similar clearness index, Rg over top-of-atmosphere radiation,
+        within ± this [1] (new in 0.14.0, an option). 0 (default): off, the
+        published conditions of Reichstein et al. (2005). At the same Rg an overcast
+        hour (diffuse light, used more efficiently by canopies; Gu et al. 2002 (m))
+        takes up more CO2 than a clear hour with a low sun, and where gaps fall in
+        overcast hours (rain on an open-path analyser) their fills take up too
+        little; 0.15, about a quarter of the index's range between overcast and clear
+        sky (Erbs et al. 1982 (m)), removed a third of that bias on two independent
+        trials that plant it, but made the fills noisier on our generated site-years,
+        which plant no diffuse-light effect (figures in DEVELOPERS.md, 0.14.0), so
+        it is not the default. See :func:`fluxpart.gapfill.clearness_index`.
     gapfill_max_window_days : float
         Largest half-width of any gap-filling window [days]; 140, Reichstein,
         gap-filling flow chart, workshop slides 2004 (the driver steps widen to
@@ -399,6 +412,7 @@ class Config:
     gapfill_rg_window: str = "centred"
     gapfill_min_donors: int = 3
     gapfill_interpolation_hours: float = 3.0
+    gapfill_clearness_tolerance: float = 0.0
     gapfill_max_window_days: float = 140.0
     rg_tolerance: float = 50.0
     tair_tolerance: float = 2.5
@@ -583,6 +597,9 @@ _RANGES = {
     "gapfill_interpolation_hours": _Range(
         0.0, 6.0, "hours", "0 turns it off; a straight line across more than 6 h cuts "
         "through the daily maximum or minimum of temperature and VPD"),
+    "gapfill_clearness_tolerance": _Range(
+        0.0, 1.0, "", "0 turns it off; beyond 1 every record counts as similar (the index "
+        "lies between 0 and about 1)"),
     "gapfill_max_window_days": _Range(
         0.0, 183.0, "days", "a window of +-183 days already spans the whole year"),
     "rg_tolerance": _Range(

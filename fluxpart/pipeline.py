@@ -497,7 +497,9 @@ def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None):
         rg_tolerance=config.rg_tolerance, tair_tolerance=config.tair_tolerance,
         vpd_tolerance=config.vpd_tolerance, max_window_days=config.gapfill_max_window_days,
         min_donors=config.gapfill_min_donors, gaps=gaps, rg_window=config.gapfill_rg_window,
-        night_rg_threshold=config.night_rg_threshold)
+        night_rg_threshold=config.night_rg_threshold,
+        clearness=conditions["clearness"] if "clearness" in conditions else None,
+        clearness_tolerance=config.gapfill_clearness_tolerance)
 
 
 def _nighttime_settings(config, rg) -> dict:
@@ -679,6 +681,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days,
         interpolation_hours=config.gapfill_interpolation_hours)
     conditions = gapfill.driver_conditions(filled_drivers)
+    if config.gapfill_clearness_tolerance > 0:
+        conditions["clearness"] = gapfill.clearness_index(
+            conditions["rg"].to_numpy(), geometry["potential_radiation"].to_numpy())
 
     year_runs = {"central": _per_record(frame.index, central),
                  **{name: _per_record(frame.index, values)

@@ -61,12 +61,12 @@ def _quality(step, k):
     return 1 if k == 0 else 2 if k == 1 else 3
 
 
-def oracle_fill(values, per_day, hour_records, conditions, radiation_condition,
+def oracle_fill(values, per_day, hour_records, conditions, radiation_conditions,
                 max_window_days=140.0, min_donors=3, is_night=None, fixed=None):
     """Fill one series gap by gap; return value, method, window, count, std, quality arrays.
 
     ``conditions``: list of (driver array, tolerance) for step 1 or None;
-    ``radiation_condition``: (driver array, tolerance) for step 2 or None;
+    ``radiation_conditions``: list of (driver array, tolerance) for step 2 or None;
     ``is_night``: bool per record to fill night and day gaps from their own class;
     ``fixed``: bool per record of gaps already filled (interpolated) that stay as
     they are, method 4 and quality 4.
@@ -80,7 +80,7 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_condition,
     count = np.zeros(n, dtype=np.int64)
     std = np.full(n, np.nan)
     quality = np.where(measured, 0, -1).astype(np.int8)
-    sequence = _steps_in_order(conditions is not None, radiation_condition is not None,
+    sequence = _steps_in_order(conditions is not None, radiation_conditions is not None,
                                max_window_days, n / per_day)
     for t in np.flatnonzero(~measured):
         if fixed is not None and fixed[t]:
@@ -89,7 +89,7 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_condition,
         donor = measured if is_night is None else measured & (is_night == is_night[t])
         for step, k in sequence:
             if step in (1, 2):
-                pairs = conditions if step == 1 else [radiation_condition]
+                pairs = conditions if step == 1 else radiation_conditions
                 if any(np.isnan(driver[t]) for driver, _ in pairs):
                     continue  # this step needs every one of its drivers at t
                 lo, hi = max(0, t - k * per_day), min(n, t + k * per_day + 1)
@@ -127,14 +127,16 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_condition,
 
 def oracle_fill_marginal(target, drivers, index, *, is_night=None, rg_tolerance=50.0,
                          tair_tolerance=2.5, vpd_tolerance=5.0, max_window_days=140.0,
-                         min_donors=3, rg_window="centred", night_rg_threshold=10.0):
+                         min_donors=3, rg_window="centred", night_rg_threshold=10.0,
+                         clearness=None, clearness_tolerance=0.15):
     """Oracle counterpart of :func:`fluxpart.gapfill.fill_marginal` (same columns).
 
     ``is_night`` None is the single rule (``donors="similar_conditions_only"``).
     With ``rg_window="centred"`` and separate classes, a day gap's radiation window
     reaches down to the night threshold and no further, so that it stays centred on
     the gap's own Rg, but it is never narrower than ±night_rg_threshold nor wider than
-    ±rg_tolerance.
+    ±rg_tolerance. With ``clearness`` (one value per record), steps 1 and 2 also require
+    it within ±clearness_tolerance.
     """
     minutes = _spacing_minutes(index)
     per_day, hour_records = 1440 // minutes, 60 // minutes
@@ -148,9 +150,13 @@ def oracle_fill_marginal(target, drivers, index, *, is_night=None, rg_tolerance=
                 return rg_tolerance
             reach_down = rg[t] - night_rg_threshold   # distance to the day class's floor
             return min(rg_tolerance, max(reach_down, night_rg_threshold))
-    out = oracle_fill(target, per_day, hour_records,
-                      [(rg, rg_tol), (tair, tair_tolerance), (vpd, vpd_tolerance)],
-                      (rg, rg_tol), max_window_days, min_donors,
+    conditions = [(rg, rg_tol), (tair, tair_tolerance), (vpd, vpd_tolerance)]
+    radiation = [(rg, rg_tol)]
+    if clearness is not None:
+        clear = (np.asarray(clearness, dtype=float), clearness_tolerance)
+        conditions, radiation = conditions + [clear], radiation + [clear]
+    out = oracle_fill(target, per_day, hour_records, conditions, radiation,
+                      max_window_days, min_donors,
                       None if is_night is None else np.asarray(is_night, dtype=bool))
     names = ("value", "method", "window_days", "count", "std", "quality")
     return pd.DataFrame(dict(zip(names, out, strict=True)), index=index)
@@ -186,7 +192,7 @@ def oracle_fill_drivers(frame, *, rg_tolerance=50.0, max_window_days=140.0,
     rg = frame["rg"].to_numpy(dtype=float)
     out = {}
     for name in [c for c in ("rg", "tair", "vpd", "tsoil") if c in frame.columns]:
-        radiation = (rg, rg_tolerance) if name in ("tair", "vpd") else None
+        radiation = [(rg, rg_tolerance)] if name in ("tair", "vpd") else None
         y = frame[name].to_numpy(dtype=float)
         fixed = None
         if name != "rg":

@@ -31,6 +31,7 @@ from fluxpart.errors import (
 from fluxpart.gapfill import (
     QUALITY_NAMES,
     centred_rg_tolerance,
+    clearness_index,
     driver_conditions,
     fill_drivers,
     fill_frame,
@@ -142,16 +143,20 @@ def test_filling_some_gaps_gives_their_fills_of_all_gaps(minutes, separate):
        driver_gap_fraction=st.floats(0.0, 0.5), long_gap_days=st.sampled_from([0.0, 5.0, 30.0]),
        max_window_days=st.sampled_from([0.0, 7.0, 30.0, 140.0, np.inf]),
        rg_tolerance=st.sampled_from([50.0, 20.0]), separate=st.booleans(),
-       min_donors=st.sampled_from([1, 3, 6]), rg_window=st.sampled_from(["centred", "fixed"]))
+       min_donors=st.sampled_from([1, 3, 6]), rg_window=st.sampled_from(["centred", "fixed"]),
+       clear=st.booleans())
 def test_vectorised_equals_oracle(seed, minutes, n, gap_fraction, driver_gap_fraction,
                                   long_gap_days, max_window_days, rg_tolerance, separate,
-                                  min_donors, rg_window):
+                                  min_donors, rg_window, clear):
     """Random series with random gaps: fill_marginal and the per-gap oracle agree."""
     rng = np.random.default_rng(seed)
     index, measured, drivers, _, _ = _synthetic(rng, n, minutes, gap_fraction,
                                                 driver_gap_fraction, long_gap_days)
     settings_ = dict(rg_tolerance=rg_tolerance, max_window_days=max_window_days,
                      min_donors=min_donors, rg_window=rg_window)
+    if clear:   # a clearness index drawn at random, missing where Rg is
+        settings_["clearness"] = np.where(np.isnan(drivers["rg"]), np.nan,
+                                          rng.uniform(0.0, 1.0, n))
     is_night = _night(drivers) if separate else None
     got = fill_marginal_module(
         measured, drivers, index, is_night=is_night, **settings_,
@@ -315,6 +320,33 @@ def test_day_gap_without_any_day_record_takes_night_records(minutes):
     row = out.iloc[gap]
     assert row["value"] == pytest.approx(3.0)
     assert (row["method"], row["count"], row["window_days"]) == (3, 2, 1.0)
+
+
+def test_clearness_index_by_hand():
+    """kt = Rg / top-of-atmosphere radiation (Liu & Jordan 1960 (m)), 0 at night, NaN
+    where Rg is missing, clipped to [0, 1.2]."""
+    kt = clearness_index([300.0, 600.0, 5.0, np.nan, 900.0, -3.0],
+                         [1000.0, 800.0, 10.0, 500.0, 700.0, 400.0])
+    np.testing.assert_allclose(kt, [0.3, 0.75, 0.0, np.nan, 1.2, 0.0])
+
+
+def test_clearness_keeps_overcast_gaps_from_clear_donors():
+    """At the same Rg a high sun behind clouds (kt 0.3) and a low sun in a clear sky (kt
+    0.8) differ in diffuse light; with a clearness index only the overcast donor fills."""
+    n = 48
+    values = np.full(n, np.nan)
+    rg, tair, vpd = np.full(n, 300.0), np.full(n, 15.0), np.full(n, 8.0)
+    kt = np.full(n, np.nan)
+    gap = 24
+    kt[gap] = 0.30
+    values[10], kt[10] = -12.0, 0.35      # overcast donor: diffuse light, more uptake
+    values[30], kt[30] = -6.0, 0.80       # clear, low sun
+    kt[np.isnan(kt)] = 0.5
+    drivers = _drivers(n, rg, tair, vpd)
+    assert fill_marginal(values, drivers, _index(n))["value"].iloc[gap] == pytest.approx(-9.0)
+    out = fill_marginal(values, drivers, _index(n), clearness=kt, clearness_tolerance=0.15)
+    assert out["value"].iloc[gap] == pytest.approx(-12.0)
+    assert (out["method"].iloc[gap], out["count"].iloc[gap]) == (1, 1)
 
 
 def test_diurnal_course_hourly_takes_one_record_each_side():

@@ -292,6 +292,23 @@ def test_a_different_seed_changes_only_the_random_draw_columns(demo_run):
                                   result.parameters["gapfill_error_model"])
 
 
+def test_clearness_option_changes_only_gaps_with_radiation(demo_run):
+    """gapfill_clearness_tolerance > 0 adds the clearness index (Rg over top-of-atmosphere
+    radiation; Liu & Jordan 1960 (m)) to the similarity steps: measured records keep
+    their values, and some fills by similar conditions move."""
+    frame, _, result = demo_run
+    other = process(frame, demo.site(), Config(gapfill_clearness_tolerance=0.15))
+    before, after = result.timeseries, other.timeseries
+    measured = before["nee_measured"].notna()
+    pd.testing.assert_series_equal(after["nee_filled"][measured],
+                                   before["nee_filled"][measured])
+    similar = before["nee_fill_method"].isin(["similar_drivers", "similar_radiation"])
+    moved = (after["nee_filled"] != before["nee_filled"]) & similar
+    assert moved.sum() > 0.05 * similar.sum()
+    with pytest.raises(ConfigError, match="gapfill_clearness_tolerance"):
+        Config(gapfill_clearness_tolerance=-0.1)
+
+
 def test_a_failing_ustar_scenario_is_left_out_with_a_warning(monkeypatch):
     """A u* scenario whose higher threshold leaves a method too few night records is left
     out of the u* part (with a warning) instead of stopping the run; the central run is not
