@@ -24,7 +24,9 @@ order  step                    records averaged                                 
 =====  ======================  ===============================================  =======
 
 Step 1 is tried only where Rg, Tair and VPD are all available at t, step 2 only
-where Rg is available at t; step 3 needs no driver. Widening stops at the largest
+where Rg is available at t; step 3 needs no driver. Optionally (``clearness``, since
+0.14.0, off in the pipeline by default) steps 1 and 2 also require a similar
+clearness index, Rg over top-of-atmosphere radiation (:func:`clearness_index`). Widening stops at the largest
 K <= ``max_window_days`` (default 140 days: the flow chart widens the driver steps
 to ±140 days; it gives the diurnal course no end, and we stop it there too); a
 pass whose K exceeds it is skipped, and rounds stop once the diurnal window covers
