@@ -269,8 +269,8 @@ def read_sites_file(path) -> NetworkFile:
     Notes
     -----
     A pattern keeps only files ending in ``.toml``, other than the network file
-    itself and other network files (a ``[batch]`` table); a plain path is taken as written. Matches of each pattern are sorted; a config listed twice is kept
-    once. A site's key is its config's file stem (characters other than letters,
+    itself and other network files (a ``[batch]`` table); a plain path is taken as
+    written. Matches of each pattern are sorted; a config listed twice is kept once. A site's key is its config's file stem (characters other than letters,
     digits, ``.``, ``_`` and ``-`` become ``_``); stems that occur more than once
     are prefixed with their folder's name (``north/tower.toml`` ->
     ``north-tower``), and a key still taken gets ``-2``, ``-3``, ...
@@ -338,11 +338,9 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
 def _is_network_file(path) -> bool:
     """True for a TOML file with a [batch] table: another network file beside the sites
     (network-2021.toml, network-2022.toml), which a glob does not list as a site."""
-    import tomllib
-
     try:
-        return "batch" in tomllib.loads(Path(path).read_text(encoding="utf-8"))
-    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        return "batch" in read_toml(path, "site config")
+    except FluxpartError:
         return False           # not readable here: listed, and its run names the fault
 
 

@@ -35,7 +35,7 @@ import hashlib
 import io as _io
 import math
 import re
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, fields
 from pathlib import Path
 
 import numpy as np
@@ -44,7 +44,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from ._validate import read_toml, refuse_binary
-from .config import setting_text, suggest_key
+from .config import Config, setting_text, suggest_key
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -876,7 +876,6 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             warnings.append(f"{name}: column {mapping[name]!r} has no values at all "
                             "(every cell empty or a missing code)")
     outside = {}
-    raw_of = {"rg": "ppfd"} if "rg" in derived else {}  # the file column a code is written in
     for name in order:
         variable = VARIABLES[name]
         column = frame[name].to_numpy()
@@ -886,12 +885,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             warnings.append(f"{name}: {outside[name]} value(s) outside the plausible range "
                             f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; "
                             "screening will reject them"
-                            + (_undeclared_code(values.get(raw_of.get(name, name)),
-                                                converted[name], variable, missing)
-                               or (name == "nee" and "storage" in values and _undeclared_code(
-                                   values["storage"], converted[name], variable, missing,
-                                   column="storage"))
-                               or ""))
+                            + _code_hint(name, values, converted[name], derived, missing))
     report = ReadReport(
         source=", ".join(str(p) for p in paths),
         interval_minutes=interval_minutes,
@@ -960,10 +954,6 @@ def _check_keys(table: dict, valid, where: str, spell: str) -> None:
                                   f"write it as [input.{key}]")
             if where == "site config: top-level table" and not isinstance(table[key], dict):
                 # a key written above the first [table] header belongs to no table
-                from dataclasses import fields
-
-                from .config import Config
-
                 settings = tuple(f.name for f in fields(Config))
                 owner = next((name for name, keys in (("site", _SITE_KEYS),
                                                       ("input", _INPUT_KEYS),
@@ -1501,6 +1491,19 @@ def _check_header_line(text: str, delimiter: str, time_columns: tuple,
                 f"[input] time_column = {setting_text(time_columns[0])} is not in the header read from "
                 f"line {rows_before_header + 1} of {str(path)!r} but on line {number + 1}: set "
                 f"[input] rows_before_header = {number}")
+
+
+def _code_hint(name, values, canonical, derived, missing) -> str:
+    """The undeclared-missing-code hint of variable `name`, looked for in the file column
+    its values come from: PPFD for an Rg derived from it, the turbulent flux and then the
+    storage column for NEE (their sum is what left the range)."""
+    variable = VARIABLES[name]
+    raw = values.get("ppfd" if name == "rg" and "rg" in derived else name)
+    hint = _undeclared_code(raw, canonical, variable, missing)
+    if not hint and name == "nee" and "storage" in values:
+        hint = _undeclared_code(values["storage"], canonical, variable, missing,
+                                column="storage")
+    return hint
 
 
 def _undeclared_code(raw, canonical, variable, missing, column=None) -> str:

@@ -96,7 +96,6 @@ _TYPICAL_P90 = {"nee": (1.0, 50.0), "rg": (100.0, 1200.0), "tair": (5.0, 45.0),
                 "rh": (30.0, 100.0), "storage": (0.5, 20.0), "ppfd": (200.0, 2500.0)}
 
 
-
 def most_repeated(values) -> tuple[float, int]:
     """The value that occurs most often in `values`, and how often (NaN, 0 if empty)."""
     codes, counts = np.unique(np.asarray(values, dtype=float), return_counts=True)
@@ -114,6 +113,7 @@ def missing_code_hint(code: float, count: int, missing, place: str = "") -> str:
     """
     return (f"; the value {code:g} alone occurs {count} times{place}: if it marks missing "
             f"data, add it to [input] missing (now {list(missing)})")
+
 
 def _outside(name: str, values: np.ndarray) -> np.ndarray:
     variable = READER_VARIABLES[name]
@@ -649,10 +649,10 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
         refuse = _tair_message(converted, units, columns, interval_minutes)
         if refuse:
             refusals["tair"] = refuse
-        else:
+        else:   # the soil and VPD checks compare with tair, so need a right tair
             refuse_soil = _tsoil_message(converted, units, columns, interval_minutes)
             if refuse_soil:
-                refusals["tsoil"] = refuse_soil   # the VPD checks compare with the saturation at tair, so need a right tair
+                refusals["tsoil"] = refuse_soil
             refuse, warn = _vpd_messages(converted, units, columns, interval_minutes)
             if refuse:
                 refusals["vpd"] = refuse

@@ -798,7 +798,6 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
 
 # --------------------------------------------------------------------------- public
 
-
 #: Name of a rerun's scratch folder in the system's temporary folder: prefix, the
 #: verifying process's id, a random part.
 _SCRATCH_PREFIX = "fluxpart-verify-"
@@ -811,7 +810,7 @@ def _alive(pid: int) -> bool:
         os.kill(pid, 0)
     except ProcessLookupError:
         return False
-    except (PermissionError, OverflowError):
+    except (PermissionError, OverflowError):   # another user's, or no such id at all
         return True
     return True
 
@@ -842,6 +841,7 @@ def remove_dead_scratch(root=None) -> list[str]:
         if not entry.exists():
             removed.append(entry.name)
     return removed
+
 
 def verify(directory, *, input_path=None, config_path=None, exact: bool = False
            ) -> VerifyReport:
