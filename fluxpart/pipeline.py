@@ -74,6 +74,8 @@ _BUDGET_FLUXES = {"nee_filled": "nee", "gpp_nighttime": "gpp_nighttime",
                   "reco_nighttime": "reco_nighttime", "gpp_daytime": "gpp_daytime",
                   "reco_daytime": "reco_daytime"}
 _REASON_LOW_USTAR = {name: code for code, name in screening.REASON_CODES.items()}["low_ustar"]
+_REASON_MORNING_RELEASE = {name: code for code, name
+                           in screening.REASON_CODES.items()}["morning_release"]
 #: Labels of the fill-quality codes of gap filling (its own mapping where it has one).
 _QUALITY_LABELS = getattr(gapfill, "QUALITY_NAMES", None) or {
     gapfill.QUALITY_UNFILLED: "unfilled", gapfill.QUALITY_MEASURED: "measured",
@@ -706,28 +708,32 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                           screened[name.removesuffix("_undelayed")].to_numpy(dtype=float),
                           equal_nan=True)
         or name == temperature}
-    outcomes = {}
-    curvature = config.daytime_curvature
-    for name, threshold in runs.items():
-        try:
-            outcomes[name] = _fill_and_partition(
-                *arguments, threshold, temperature, config, curvature,
-                night_fits.get(temperature) if name == "central" else None,
-                None if name == "central" else outcomes["central"][2], delay)
-            if name == "central":
-                # the u* scenarios keep the central run's light-response curvature, so
-                # that their spread is the u* threshold's alone
-                day_parameters = outcomes["central"][4].parameters
-                curvature = float(day_parameters["curvature"].iloc[0])
-        except InsufficientDataError as error:
-            if name == "central":
-                raise
-            # a higher u* threshold can leave too few night records for a method: that
-            # scenario is left out of the u* part (computed from the runs that remain)
-            warnings.append(f"u* scenario {name} not computed ({error}); the u* part of the "
-                            "uncertainty uses the remaining runs")
-        if name not in ("ustar_seasonal", "ustar_year"):     # runs stage_count cannot foresee
-            step(f"gap filling and partitioning ({name})")
+    year_keys = timestamps.budget_year_numbers(frame.index, config.year_start)
+    run_warnings = []
+    outcomes = _threshold_runs(arguments, runs, temperature, config, night_fits.get(temperature),
+                               delay, run_warnings, step)
+    # the release of CO2 stored on calm nights, seen in the mornings after them
+    # (storage_check); where it shows, those mornings are excluded and the runs redone
+    ustar = frame["ustar"].to_numpy(dtype=float)
+    central_day = outcomes["central"][4]
+    release = storage_check.morning_release(outcomes["central"][1], ustar, runs["central"],
+                                            is_night, central_day.reco - central_day.gpp,
+                                            year_keys, interval)
+    released = np.zeros(len(frame), dtype=bool)
+    flagged = [row["year"] for row in release if row["flagged"]]
+    if flagged and config.storage_release == "exclude":
+        released = storage_check.release_mornings(ustar, runs["central"], is_night, year_keys,
+                                                  flagged, interval) \
+            & np.isfinite(screened["nee"].to_numpy(dtype=float))
+        screened = screened.assign(nee=np.where(released, np.nan,
+                                                screened["nee"].to_numpy(dtype=float)))
+        arguments = (frame, screened, filled_drivers, conditions, is_night)
+        run_warnings = []
+        outcomes = _threshold_runs(arguments, runs, temperature, config,
+                                   night_fits.get(temperature), delay, run_warnings,
+                                   lambda label: None)
+    warnings.extend(run_warnings)
+    warnings.extend(storage_check.release_warnings(release, int(released.sum())))
 
     # the nighttime method's central Reco averaged over the two respiration forms; the
     # same per-record shift in every u* run keeps their spread the threshold's alone
@@ -746,9 +752,10 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
             f"{max(config.daytime_e0_window_days)} days); the nighttime method's E0 "
             f"({float(np.median(day.e0)):.0f} K) was used there, flagged 'fallback' in the "
             "daytime parameter table, so the two methods are not independent in their E0")
-    flags = screens.flags.assign(nee_low_ustar=too_calm)
+    flags = screens.flags.assign(nee_low_ustar=too_calm, nee_morning_release=released)
     reason = screens.reason.to_numpy().copy()
     reason[(reason == 0) & too_calm] = _REASON_LOW_USTAR
+    reason[(reason == 0) & released] = _REASON_MORNING_RELEASE
     timeseries = pd.concat([
         frame,
         geometry,
@@ -766,16 +773,12 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
 
     budgets = budget.aggregate(timeseries, interval, fluxes=_BUDGET_FLUXES,
                                year_start=config.year_start)
-    # budget year of each record ([processing] year_start); u* thresholds and the
-    # annual E0 stay per calendar year of data
-    year_keys = timestamps.budget_year_numbers(frame.index, config.year_start)
+    # year_keys: budget year of each record ([processing] year_start); u* thresholds and
+    # the annual E0 stay per calendar year of data
     daily = agreement.method_agreement(budgets.daily, config.agreement_margin)
     monthly = agreement.method_agreement(budgets.monthly, config.agreement_margin)
     annual = agreement.method_agreement(budgets.annual, config.agreement_margin)
     warnings.extend(agreement.disagreements(annual, config.agreement_margin))
-    warnings.extend(storage_check.release_warnings(storage_check.morning_release(
-        nee_measured, frame["ustar"].to_numpy(dtype=float), runs["central"],
-        is_night, day.reco - day.gpp, year_keys, interval)))
     step("budgets")
     # the year's detected threshold (seasons filtered higher are in the time series)
     annual = annual.assign(ustar_threshold=pd.Series(year_runs["central"]).groupby(year_keys)
@@ -802,6 +805,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     audit_table = audit.audit_trail(timeseries, year_keys=year_keys)
     counts = screens.counts.copy()
     counts[screening.REASON_CODES[_REASON_LOW_USTAR]] = int((reason == _REASON_LOW_USTAR).sum())
+    counts[screening.REASON_CODES[_REASON_MORNING_RELEASE]] = int(
+        (reason == _REASON_MORNING_RELEASE).sum())
     counts[screening.REASON_CODES[0]] = int((reason == 0).sum())
     for year, row in annual.iterrows():
         if not row["complete"]:
@@ -839,6 +844,39 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                     "uncertainty": {"confidence": uncertainty.CONFIDENCE,
                                     "not_quantified": list(uncertainty.NOT_QUANTIFIED),
                                     "checked": uncertainty.CALIBRATION_CHECK}})
+
+
+def _threshold_runs(arguments, runs, temperature, config, night_fit, delay, warnings, step):
+    """Fill and partition at each u* run's thresholds; the outcomes by run name.
+
+    The central run comes first (it may reuse `night_fit`, the temperature choice's
+    nighttime fit on the same measured NEE); the scenarios share its NEE fill of the
+    day records and its light-response curvature. A scenario with too little data is
+    left out with a warning appended to `warnings`.
+    """
+    outcomes = {}
+    curvature = config.daytime_curvature
+    for name, threshold in runs.items():
+        try:
+            outcomes[name] = _fill_and_partition(
+                *arguments, threshold, temperature, config, curvature,
+                night_fit if name == "central" else None,
+                None if name == "central" else outcomes["central"][2], delay)
+            if name == "central":
+                # the u* scenarios keep the central run's light-response curvature, so
+                # that their spread is the u* threshold's alone
+                day_parameters = outcomes["central"][4].parameters
+                curvature = float(day_parameters["curvature"].iloc[0])
+        except InsufficientDataError as error:
+            if name == "central":
+                raise
+            # a higher u* threshold can leave too few night records for a method: that
+            # scenario is left out of the u* part (computed from the runs that remain)
+            warnings.append(f"u* scenario {name} not computed ({error}); the u* part of the "
+                            "uncertainty uses the remaining runs")
+        if name not in ("ustar_seasonal", "ustar_year"):     # runs stage_count cannot foresee
+            step(f"gap filling and partitioning ({name})")
+    return outcomes
 
 
 def _respiration_form(frame, filled_drivers, central, is_night, temperature, config, delay=0):

@@ -61,7 +61,8 @@ _FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytim
 
 #: Label of every screening outcome, in the order the checks are applied (the
 #: values of ``rejection_reason``); the first is "kept".
-REASON_LABELS = ("kept", "missing", "out_of_range", "site_flag", "spike", "low_ustar")
+REASON_LABELS = ("kept", "missing", "out_of_range", "site_flag", "spike", "low_ustar",
+                 "morning_release")
 #: Label of every fill-quality code (the values of the ``*_fill_quality`` columns); the
 #: same as :data:`fluxpart.gapfill.QUALITY_NAMES` (tested).
 QUALITY_LABELS: dict[int, str] = {-1: "unfilled", 0: "measured", 1: "A", 2: "B", 3: "C",
@@ -71,7 +72,9 @@ FILL_METHOD_LABELS = ("measured", "similar_drivers", "similar_radiation", "diurn
                       "interpolated", "unfilled")
 
 _REASONS_TEXT = ("kept (passed screening and the u* filter), missing, out_of_range, site_flag, "
-                 "spike (Papale et al. 2006), low_ustar (night record below the u* threshold)")
+                 "spike (Papale et al. 2006), low_ustar (night record below the u* threshold), "
+                 "morning_release (day record within 3 h after a calm night, in a year "
+                 "whose mornings after calm nights show the release of stored CO2)")
 _QUALITY_TEXT = ("measured; A, B, C: filled, from the best to the least reliable class of "
                  "marginal distribution sampling; interpolated: a short driver gap filled "
                  "linearly; unfilled")
@@ -362,6 +365,8 @@ _PATTERNS = [
     (r"nee_site_flag", lambda m: ("1", "rejected by the site's own flag")),
     (r"nee_spike", lambda m: ("1", "rejected as a spike (Papale et al. 2006)")),
     (r"nee_low_ustar", lambda m: ("1", "night record with u* below the threshold")),
+    (r"nee_morning_release", lambda m: ("1", "day record within 3 h after a calm night, "
+                                        "excluded for the release of CO2 stored that night")),
     (r"rg_above_potential", lambda m: ("1", "Rg above potential radiation by more than the "
                                        "margin")),
     (r"(gpp|reco|nee)_(nighttime|daytime|filled)_(random_error|uncertainty|sigma)",

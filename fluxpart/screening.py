@@ -9,16 +9,19 @@ NEE record, the screened series, per-reason counts and the thresholds used
 Reason codes (column ``reason`` of :attr:`Screening.reason`, ``int8``), the
 first condition in the order of application that rejected the NEE record:
 
-====  ================  ===========================================================
-code  name              meaning
-====  ================  ===========================================================
-0     ``kept``          NEE present and accepted
-1     ``missing``       NEE absent (NaN) in the input
-2     ``out_of_range``  NEE outside its plausible range in ``variables.VARIABLES``
-3     ``site_flag``     the site's own quality flag ``nee_flag`` is non-zero
-4     ``spike``         double-differenced NEE outlier (Papale et al. 2006)
-5     ``low_ustar``     night record with u* below the threshold, or u* missing
-====  ================  ===========================================================
+====  ===================  ===========================================================
+code  name                 meaning
+====  ===================  ===========================================================
+0     ``kept``             NEE present and accepted
+1     ``missing``          NEE absent (NaN) in the input
+2     ``out_of_range``     NEE outside its plausible range in ``variables.VARIABLES``
+3     ``site_flag``        the site's own quality flag ``nee_flag`` is non-zero
+4     ``spike``            double-differenced NEE outlier (Papale et al. 2006)
+5     ``low_ustar``        night record with u* below the threshold, or u* missing
+6     ``morning_release``  day record within 3 h after a calm night, in a year whose
+                           mornings show the release of stored CO2
+                           (:func:`fluxpart.storage_check.release_mornings`)
+====  ===================  ===========================================================
 """
 
 from __future__ import annotations
