@@ -714,26 +714,16 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                                delay, run_warnings, step)
     # the release of CO2 stored on calm nights, seen in the mornings after them
     # (storage_check); where it shows, those mornings are excluded and the runs redone
-    ustar = frame["ustar"].to_numpy(dtype=float)
-    central_day = outcomes["central"][4]
-    release = storage_check.morning_release(outcomes["central"][1], ustar, runs["central"],
-                                            is_night, central_day.reco - central_day.gpp,
-                                            year_keys, interval)
-    released = np.zeros(len(frame), dtype=bool)
-    flagged = [row["year"] for row in release if row["flagged"]]
-    if flagged and config.storage_release == "exclude":
-        released = storage_check.release_mornings(ustar, runs["central"], is_night, year_keys,
-                                                  flagged, interval) \
-            & np.isfinite(screened["nee"].to_numpy(dtype=float))
-        screened = screened.assign(nee=np.where(released, np.nan,
-                                                screened["nee"].to_numpy(dtype=float)))
-        arguments = (frame, screened, filled_drivers, conditions, is_night)
-        run_warnings = []
-        outcomes = _threshold_runs(arguments, runs, temperature, config,
-                                   night_fits.get(temperature), delay, run_warnings,
-                                   lambda label: None)
+    def rerun(screened_now):
+        notes = []
+        return _threshold_runs((frame, screened_now, filled_drivers, conditions, is_night),
+                               runs, temperature, config, night_fits.get(temperature), delay,
+                               notes, lambda label: None), notes
+    outcomes, run_warnings, screened, released, release_notes = _storage_release(
+        outcomes, run_warnings, screened, rerun, frame["ustar"].to_numpy(dtype=float),
+        runs["central"], is_night, year_keys, interval, config.storage_release)
     warnings.extend(run_warnings)
-    warnings.extend(storage_check.release_warnings(release, int(released.sum())))
+    warnings.extend(release_notes)
 
     # the nighttime method's central Reco averaged over the two respiration forms; the
     # same per-record shift in every u* run keeps their spread the threshold's alone
@@ -877,6 +867,41 @@ def _threshold_runs(arguments, runs, temperature, config, night_fit, delay, warn
         if name not in ("ustar_seasonal", "ustar_year"):     # runs stage_count cannot foresee
             step(f"gap filling and partitioning ({name})")
     return outcomes
+
+
+def _storage_release(outcomes, run_warnings, screened, rerun, ustar, threshold, is_night,
+                     year_keys, interval, mode):
+    """Exclude the mornings after calm nights where their release of stored CO2 shows.
+
+    Stage by stage (:data:`fluxpart.storage_check.CALM_SHARES`: the nights at least half
+    calm, then, in the years that stage flagged, the nights with any calm record), the
+    mornings after such nights are compared with the others
+    (:func:`fluxpart.storage_check.morning_release`); where the excess is flagged and
+    `mode` is ``"exclude"``, they are excluded from the measured NEE and ``rerun(screened)``
+    redoes the u* runs. Returns the outcomes and their warnings, the screened record, the
+    excluded records (bool) and the warnings that name the release.
+    """
+    released = np.zeros(len(screened), dtype=bool)
+    notes, years = [], None
+    for stage, share in enumerate(storage_check.CALM_SHARES):
+        day = outcomes["central"][4]
+        rows = [row for row in storage_check.morning_release(
+                    outcomes["central"][1], ustar, threshold, is_night, day.reco - day.gpp,
+                    year_keys, interval, share)
+                if years is None or row["year"] in years]
+        flagged = [row["year"] for row in rows if row["flagged"]]
+        if not flagged or mode != "exclude":
+            notes.extend(storage_check.release_warnings(rows, 0, stage))
+            break
+        nee = screened["nee"].to_numpy(dtype=float)
+        more = storage_check.release_mornings(ustar, threshold, is_night, year_keys, flagged,
+                                              interval, share) & np.isfinite(nee)
+        released |= more
+        screened = screened.assign(nee=np.where(more, np.nan, nee))
+        outcomes, run_warnings = rerun(screened)
+        notes.extend(storage_check.release_warnings(rows, int(more.sum()), stage))
+        years = flagged
+    return outcomes, run_warnings, screened, released, notes
 
 
 def _respiration_form(frame, filled_drivers, central, is_night, temperature, config, delay=0):
