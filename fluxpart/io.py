@@ -35,6 +35,7 @@ import hashlib
 import io as _io
 import math
 import re
+import unicodedata
 from dataclasses import dataclass, field, fields
 from pathlib import Path
 
@@ -78,6 +79,7 @@ from .variables import (
     REQUIRED,
     VARIABLES,
     to_canonical,
+    unit_spelling,
     units_for,
     vpd_from_rh,
 )
@@ -544,7 +546,7 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
         raise ConfigError(f"[input] time_format = {setting_text(input_table['time_format'])}: expected a "
                           "non-empty string such as \"%Y-%m-%d %H:%M\"")
     columns = _string_table(input_table["columns"], "[input.columns]")
-    units = _string_table(input_table.get("units", {}), "[input.units]")
+    units = _unit_spellings(_string_table(input_table.get("units", {}), "[input.units]"))
     _check_mapping(columns, units)
     time_zone = input_table.get("time_zone")
     if time_zone is not None:
@@ -700,7 +702,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     paths = _as_paths(path)
     columns, flag_columns = _split_flag_columns(columns)
     columns = _string_table(columns, "[input.columns]")
-    units = _string_table(dict(units or {}), "[input.units]")
+    units = _unit_spellings(_string_table(dict(units or {}), "[input.units]"))
     _check_mapping(columns, units, flag_columns)
     time_columns = _check_time_column(time_column)
     time_marks = _check_time_marks(time_marks)
@@ -1089,6 +1091,12 @@ def _check_mapping(columns: dict, units: dict, flag_columns: tuple = ()) -> None
                                 f"unit for {name}; did you mean {setting_text(same[0])}? (unit "
                                 "symbols are case-sensitive)")
         to_canonical(np.empty(0), name, unit, interval_minutes=30)  # UnitError lists units
+
+
+def _unit_spellings(units: dict) -> dict:
+    """`units` with each spelling that differs from an accepted one only in look-alike
+    characters (Greek mu, superscripts, minus sign) replaced by it."""
+    return {name: unit_spelling(name, unit) for name, unit in units.items()}
 
 
 def _check_time_marks(value) -> str:
@@ -1845,7 +1853,15 @@ def _near(name: str, options: list, taken=()) -> str:
     if not close:
         stripped = [o for o in free if o.strip() == name.strip()]
         close = stripped[:1]
-    return f" (did you mean {close[0]!r}?)" if close else ""
+    if not close:
+        return ""
+    if unicodedata.normalize("NFKC", close[0]) == unicodedata.normalize("NFKC", name):
+        # shown alike by most fonts (a Greek mu typed for the file's micro sign)
+        odd = ", ".join(f"U+{ord(c):04X} {unicodedata.name(c, '')}".rstrip()
+                        for c in dict.fromkeys(name) if c not in close[0])
+        return (f" (did you mean {close[0]!r}? they differ only in look-alike characters, "
+                f"the setting has {odd}: copy the name from the file)")
+    return f" (did you mean {close[0]!r}?)"
 
 
 #: Delimiters a one-cell header may reveal: character, its name, the TOML value that sets it

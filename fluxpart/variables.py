@@ -8,6 +8,7 @@ relative humidity and air temperature by :func:`vpd_from_rh`.
 
 from __future__ import annotations
 
+import unicodedata
 from dataclasses import dataclass
 
 import numpy as np
@@ -24,6 +25,7 @@ __all__ = [
     "Variable",
     "saturation_vapour_pressure",
     "to_canonical",
+    "unit_spelling",
     "units_for",
     "vpd_from_rh",
 ]
@@ -135,6 +137,34 @@ PER_INTERVAL_UNITS = frozenset({("rg", "MJ m-2"), ("nee", "g C m-2")})
 def units_for(name: str) -> tuple[str, ...]:
     """Return the unit spellings accepted for canonical variable `name`."""
     return tuple(_CONVERSIONS[name])
+
+
+def _folded(unit: str) -> str:
+    """`unit` with look-alike characters folded: compatibility forms (NFKC: the micro sign
+    to the Greek mu, superscript digits to digits) and the minus sign to a hyphen."""
+    return unicodedata.normalize("NFKC", unit).replace("\u2212", "-")
+
+
+def unit_spelling(name: str, unit: str) -> str:
+    """The accepted spelling of `unit` for variable `name`, where they differ only in
+    look-alike characters; else `unit` unchanged.
+
+    A unit copied from a file header or a paper is often typed with the Greek mu (U+03BC)
+    for the micro sign (U+00B5), which a font shows alike, or with superscripts
+    ("W m⁻²"); both name the same unit.
+
+    Examples
+    --------
+    >>> unit_spelling("rg", "W m\u207b\u00b2")
+    'W m-2'
+    >>> unit_spelling("nee", "\u03bcmol m-2 s-1") == "\u00b5mol m-2 s-1"
+    True
+    """
+    table = _CONVERSIONS.get(name, {})
+    if not isinstance(unit, str) or unit in table:
+        return unit
+    same = [spelling for spelling in table if _folded(spelling) == _folded(unit)]
+    return same[0] if same else unit
 
 
 def to_canonical(values, name: str, unit: str | None = None, *,

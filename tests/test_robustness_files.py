@@ -321,3 +321,17 @@ def test_home_folder_tilde_in_the_input_path_is_named(example, tmp_path, capsys)
         error = _one_error(capsys)
         assert f'[input] path = "{path}"' in error and "'~' is not expanded" in error
         assert str(Path(path).expanduser()) in error
+
+
+def test_column_named_with_a_look_alike_character_says_so(example, tmp_path, capsys):
+    """A mapped name typed with the Greek mu where the header has the micro sign is named
+    with the code point that differs, not only "did you mean" a name shown alike.
+    Outside fact: U+03BC is GREEK SMALL LETTER MU, U+00B5 MICRO SIGN (Unicode)."""
+    records = example.with_suffix(".csv").read_text().replace(
+        "co2_exchange", "fc_\u00b5mol", 1)
+    config = _with_records(example, tmp_path, "tower.csv", records)
+    config.write_text(config.read_text(encoding="utf-8").replace(
+        'nee = "co2_exchange"', 'nee = "fc_\u03bcmol"'), encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "[input.columns] nee" in line and "U+03BC GREEK SMALL LETTER MU" in line
