@@ -123,6 +123,9 @@ _GLOB_CHARACTERS = set("*?[")
 #: A leading 0 is never grouped ("0.125" is a decimal point in a mixed file).
 _DIGIT_GROUPING = {",": re.compile(r"[+-]?[1-9]\d{0,2}(?:\.\d{3})+(?:,\d*)?"),
                    ".": re.compile(r"[+-]?[1-9]\d{0,2}(?:,\d{3})+\.\d*")}
+#: Digit grouping by a character that is never a decimal mark: an apostrophe (Swiss
+#: spreadsheets), a right single quote, or a space (plain, no-break, narrow no-break, thin).
+_OTHER_GROUPING = re.compile(r"[+-]?[1-9]\d{0,2}(?:['\u2019 \u00a0\u202f\u2009]\d{3})+(?:[.,]\d*)?")
 
 
 @dataclass(frozen=True)
@@ -1933,6 +1936,11 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
                 pd.to_numeric(cell.replace(",", "."), errors="coerce")):
             hint = ("; it looks like a decimal comma: set [input] decimal = \",\" (and the "
                     "delimiter, e.g. delimiter = \";\")")
+        elif _OTHER_GROUPING.fullmatch(cell):
+            # listed as a missing code it would blank every value of 1000 or more
+            hint = ("; it is a number with digit grouping (a thousands separator): write the "
+                    "numbers without digit grouping in a copy of the file (a spreadsheet's "
+                    "number format without the 1000 separator)")
         elif name.startswith("nee_flag"):
             # a missing flag rejects nothing, so "add it to missing" would keep bad records
             hint = ("; site flags must be numbers (a record is kept where its flag is in "

@@ -286,6 +286,28 @@ def test_thousands_separator_beside_decimal_point_is_named(example, tmp_path, ca
     assert "'solar_down' (rg)" in line and "thousands separator" in line
 
 
+@pytest.mark.parametrize("separator", ["'", "\u202f", " "])
+def test_thousands_separator_that_is_no_decimal_mark_is_named(example, tmp_path, capsys,
+                                                              separator):
+    """'1'034.1' (Swiss spreadsheets) or '1 034.1' with a (narrow no-break) space: named as
+    digit grouping; "add it to [input] missing" would blank every Rg of 1000 W m-2 or more.
+    Outside fact: the apostrophe and the narrow no-break space (U+202F) as thousands
+    separators of Swiss and French number formats (Unicode CLDR (m))."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    column = lines[0].split(",").index("solar_down")
+    rows = [lines[0]]
+    for line in lines[1:]:
+        cells = line.split(",")
+        if cells[column] != "-9999" and float(cells[column]) * 1.2 >= 1000:
+            cells[column] = f"{float(cells[column]) * 1.2:,.1f}".replace(",", separator)
+        rows.append(",".join(cells))
+    config = _with_records(example, tmp_path, "grouped.csv", "\n".join(rows) + "\n")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "'solar_down' (rg)" in line and "thousands separator" in line
+    assert "[input] missing" not in line
+
+
 def test_zero_bytes_of_a_cut_write_are_named_in_one_short_line(example, tmp_path, capsys):
     """A block of NUL bytes (a logger's write cut by a power failure) before a record: one
     line naming the file line, not the stamp repr with 200 '\\x00' escapes (~1 kB)."""
