@@ -1327,7 +1327,24 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                                                if rows_before_header else ""),
                               "is empty" if not text else "holds only blank lines") from None
     except pd.errors.ParserError as error:
-        raise InputFileError(_parser_message(path, delimiter, str(error))) from None
+        if "EOF inside string" not in str(error):
+            raise InputFileError(_parser_message(path, delimiter, str(error))) from None
+        # a quote opened and never closed: the parser names no line of the file
+        text_lines = text.splitlines()
+        number = _unclosed_quote_line(text_lines)
+        shown = _shown_line(text_lines[number])
+        if any(line.strip() for line in text_lines[number + 1:]) or warnings is None \
+                or number <= rows_before_header + rows_after_header + 1:
+            raise InputFileError(
+                f"input file {str(path)!r}: line {number + 1} ({shown!r}) opens a quote (\") "
+                "that no later line closes, so the parser would read the rest of the file "
+                "as one value; close or delete the quote in a copy of the file") from None
+        # the last line, cut inside a quoted value (a logger stopped mid-write)
+        warnings.append(f"input file {str(path)!r}: its last line ({number + 1}: {shown!r}) "
+                        "ends inside a quoted value, a record cut short (a logger stopped "
+                        "mid-write): dropped")
+        return _read_text(path, "\n".join(text_lines[:number]) + "\n", delimiter,
+                          rows_before_header, rows_after_header, warnings)
     first_line = rows_before_header + rows_after_header + 2
     raw = _trailing_fields(path, raw, first_line)
     blank = _blank_rows(raw)
@@ -1428,6 +1445,15 @@ def _parser_message(path: Path, delimiter: str, error: str) -> str:
                 "in a copy of the file")
     return (f"input file {str(path)!r} cannot be parsed with delimiter {delimiter!r}: "
             f"{' '.join(error.split())}")
+
+
+def _unclosed_quote_line(text_lines: list) -> int:
+    """Index of the line opening the quote that the file never closes: the last line
+    after which an odd number of quote characters has been read (a doubled quote inside
+    a quoted value counts two; a quoted value may span lines)."""
+    odd = np.cumsum([line.count('"') for line in text_lines]) % 2 == 1
+    opened = np.flatnonzero(odd & ~np.concatenate([[False], odd[:-1]]))
+    return int(opened[-1]) if opened.size else len(text_lines) - 1
 
 
 def _field_count(line: str, delimiter: str) -> int:

@@ -1069,6 +1069,31 @@ def test_last_line_cut_short_is_dropped_and_named(tmp_path):
     assert len(named) == 1 and "dropped" in named[0]
 
 
+def test_last_line_cut_inside_a_quote_is_dropped_and_a_quote_left_open_named(tmp_path):
+    """Quoted stamps (as csv writers quote text): a last line cut inside its quote is
+    dropped like any cut last line; a quote opened mid-file and never closed is refused
+    naming its line (the parser's own message, "EOF inside string", named no line of the
+    file; review six of logger layouts)."""
+    records = _records(periods=200)
+    path = _write(tmp_path / "t.csv", records)
+    lines = [f'"{stamp}",{rest}' for stamp, rest in
+             (line.split(",", 1) for line in path.read_text().splitlines())]
+    quoted = tmp_path / "quoted.csv"
+    quoted.write_text("\n".join(lines) + "\n")
+    cut = tmp_path / "cut.csv"
+    cut.write_text("\n".join(lines + ['"2021-06-05 00:0']))
+    frame, report = _read(cut)
+    pd.testing.assert_frame_equal(frame, _read(quoted)[0], check_freq=False)
+    named = [w for w in report.warnings if "cut.csv" in w and "last line (202: " in w]
+    assert len(named) == 1 and "quoted value" in named[0] and "dropped" in named[0]
+    plain = path.read_text().splitlines()
+    plain[60] = plain[60].replace(",", ',"', 1)          # 'stamp,"3.518,0.0,...'
+    opened = tmp_path / "open.csv"
+    opened.write_text("\n".join(plain) + "\n")
+    with pytest.raises(InputFileError, match=r"'.*open.csv': line 61 \('[^']*'\) opens a quote"):
+        _read(opened)
+
+
 def test_short_line_inside_a_file_is_an_error_naming_it(tmp_path):
     """A line cut short before the last one is refused naming the line, not read as missing
     values (its last value may be cut); a line with too many fields names the line plainly."""
