@@ -1265,8 +1265,9 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
             f"input file {str(path)!r} is not {encoding} text (byte 0x{data[error.start]:02x} "
             f"on line {line}); set [input] encoding = \"latin-1\" (or \"cp1252\", or "
             "\"utf-16\") to the encoding it was written in") from None
-    if text.startswith("\ufeff"):
-        text = text[1:]
+    # the byte-order mark, also where files saved with one were joined end to end (a
+    # header line starting with U+FEFF then is not the header line it repeats)
+    text = text.replace("\ufeff", "")
     nul = text.find("\x00")
     if nul >= 0 and text.count("\x00") >= len(text) / 4:
         raise InputFileError(f"input file {str(path)!r} is read as {encoding} but every other "
@@ -1351,6 +1352,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     lines = np.arange(len(raw)) + first_line
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
+    _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
     named = _named_width(header)
     raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings, named)
     unnamed_surplus = 0
@@ -1370,6 +1372,31 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
     return raw, lines, [str(h).strip() for h in header], unnamed_surplus
+
+
+def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
+                            rows_after_header: int) -> None:
+    """Raise where the header line repeats among the records: a logger restarted its
+    program and wrote its title, header and units lines again, or files were joined end
+    to end. Named before the lines around it (a title of one field reads as a record
+    cut short)."""
+    text_lines = text.splitlines()
+    if rows_before_header >= len(text_lines):
+        return
+    header_line = text_lines[rows_before_header].strip()
+    if not header_line or text.count(header_line) < 2:     # one C pass; most files stop here
+        return
+    first_data = rows_before_header + rows_after_header + 1
+    again = next((number for number, line in enumerate(text_lines[first_data:], first_data)
+                  if line.strip() == header_line), None)
+    if again is None:
+        return
+    around = ("; the title and units lines around it too" if rows_before_header
+              or rows_after_header else "")
+    raise InputFileError(
+        f"input file {str(path)!r}: line {again + 1} repeats the header line (a logger "
+        "program restarted, or files joined end to end?): in a copy of the file, remove it"
+        f"{around}, or split the file there and list the parts in [input] path")
 
 
 def _named_width(header: list) -> int:

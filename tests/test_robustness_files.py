@@ -357,3 +357,28 @@ def test_column_named_with_a_look_alike_character_says_so(example, tmp_path, cap
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "[input.columns] nee" in line and "U+03BC GREEK SMALL LETTER MU" in line
+
+
+@pytest.mark.parametrize("restart", ["title_header_units", "files_with_bom_joined"])
+def test_header_repeated_mid_file_is_named_at_its_line(example, tmp_path, capsys, restart):
+    """A logger restarting its program writes its title, header and units lines again
+    into the same file; files saved with a byte-order mark (Unicode U+FEFF) and joined end
+    to end repeat the header behind one. Both are named at the repeated header's line
+    (were: the title line called a record cut short; the mark hid the repetition)."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    if restart == "title_header_units":
+        block = ["Tamsworth heath TH-2", lines[0], "-,umol m-2 s-1,W m-2,C,kPa,m s-1,C,%,-"]
+        text = "\n".join(block + lines[1:5000] + block + lines[5000:]) + "\n"
+        repeated = 5004
+        extra = "rows_before_header = 1\nrows_after_header = 1\n"
+    else:
+        text = "\ufeff" + "\n".join(lines[:5000]) + "\n\ufeff" + "\n".join(lines) + "\n"
+        repeated, extra = 5001, ""
+    data = tmp_path / "restart.csv"
+    data.write_bytes(text.encode("utf-8"))
+    config = tmp_path / "restart.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', f'path = "restart.csv"\n{extra}'), encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert f"line {repeated} repeats the header line" in line and "restart.csv" in line
