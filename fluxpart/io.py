@@ -119,10 +119,10 @@ _FLOAT_SPELLINGS_OF_NAN = ("nan", "+nan", "-nan")
 _WHITESPACE = "whitespace"
 _GLOB_CHARACTERS = set("*?[")
 #: A number written with digit grouping (thousands separators) for each decimal mark:
-#: "1.034,5" or "1.034" where the decimal mark is a comma, "1,034.5" where it is a point.
-#: A leading 0 is never grouped ("0.125" is a decimal point in a mixed file).
+#: "1.034,5" or "1.034" where the decimal mark is a comma, "1,034.5" or "1,034" where it
+#: is a point. A leading 0 is never grouped ("0.125" is a decimal point in a mixed file).
 _DIGIT_GROUPING = {",": re.compile(r"[+-]?[1-9]\d{0,2}(?:\.\d{3})+(?:,\d*)?"),
-                   ".": re.compile(r"[+-]?[1-9]\d{0,2}(?:,\d{3})+\.\d*")}
+                   ".": re.compile(r"[+-]?[1-9]\d{0,2}(?:,\d{3})+(?:\.\d*)?")}
 #: Digit grouping by a character that is never a decimal mark: an apostrophe (Swiss
 #: spreadsheets), a right single quote, or a space (plain, no-break, narrow no-break, thin).
 _OTHER_GROUPING = re.compile(r"[+-]?[1-9]\d{0,2}(?:['\u2019 \u00a0\u202f\u2009]\d{3})+(?:[.,]\d*)?")
@@ -1971,7 +1971,8 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
         # numbers (handled with the numeric codes below) and nothing is "not a number"
         numbers, is_code = plain
         return _apply_numeric_codes(numbers, is_code, missing, decimal)
-    cleaned = text.str.strip()
+    # a typographic minus sign (U+2212, word processors and some report exports) is a minus
+    cleaned = text.str.strip().str.replace("\u2212", "-", regex=False)
     folded = cleaned.str.casefold()
     string_codes = {str(c).strip().casefold() for c in missing if isinstance(c, str)}
     is_code = folded.isin(string_codes).to_numpy() | (cleaned == "").to_numpy() \
@@ -1989,6 +1990,9 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
                 pd.to_numeric(cell.replace(",", "."), errors="coerce")):
             hint = ("; it looks like a decimal comma: set [input] decimal = \",\" (and the "
                     "delimiter, e.g. delimiter = \";\")")
+            if _DIGIT_GROUPING["."].fullmatch(cell):
+                hint += (", unless it is a thousands separator (1,034 for 1034): then write "
+                         "the numbers without digit grouping in a copy of the file")
         elif _OTHER_GROUPING.fullmatch(cell):
             # listed as a missing code it would blank every value of 1000 or more
             hint = ("; it is a number with digit grouping (a thousands separator): write the "
@@ -2015,7 +2019,8 @@ def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: 
     1.034, not 1034 (an Rg or PPFD above 1000 turned into a value near 1, silently); a
     "1.034,5" or "1,034.5" is not a number at all. A "1.034" counts as grouped only in a
     column that uses decimal commas elsewhere (a column written with decimal points is
-    read as such).
+    read as such), and a "1,034" with ``decimal = "."`` only in a column that uses decimal
+    points elsewhere (the decimal-comma hint would have turned 1034 into 1.034).
     """
     grouping = "." if decimal == "," else ","
     candidates = cleaned.str.contains(grouping, regex=False).to_numpy(dtype=bool)
@@ -2024,10 +2029,10 @@ def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: 
     pattern = _DIGIT_GROUPING[decimal]
     cells = cleaned[candidates]
     grouped = cells.str.fullmatch(pattern).to_numpy(dtype=bool)
-    if decimal == ",":
-        both = cells.str.contains(",", regex=False).to_numpy(dtype=bool)
-        if not cleaned.str.contains(",", regex=False).any():
-            grouped = grouped & both
+    if not cleaned.str.contains(decimal, regex=False).any():
+        # "1.034" (decimal comma) or "1,034" (decimal point) without the decimal mark in
+        # the column: it may be a decimal mark of the other kind, named as such elsewhere
+        grouped = grouped & cells.str.contains(decimal, regex=False).to_numpy(dtype=bool)
     if not grouped.any():
         return
     first = int(np.flatnonzero(candidates)[np.flatnonzero(grouped)[0]])

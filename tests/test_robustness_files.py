@@ -12,6 +12,7 @@ import gzip
 import zipfile
 from pathlib import Path
 
+import pandas as pd
 import pytest
 
 from fluxpart.cli import main
@@ -382,3 +383,39 @@ def test_header_repeated_mid_file_is_named_at_its_line(example, tmp_path, capsys
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert f"line {repeated} repeats the header line" in line and "restart.csv" in line
+
+
+def test_grouped_integers_in_a_decimal_point_column_are_named(example, tmp_path, capsys):
+    """'1,034' (no decimals, quoted as csv writers quote it) in a column written with
+    decimal points elsewhere is digit grouping: named as such, where the decimal-comma
+    hint would have led to reading 1034 W m-2 as 1.034."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    column = lines[0].split(",").index("solar_down")
+    rows = [lines[0]]
+    for line in lines[1:]:
+        cells = line.split(",")
+        if cells[column] != "-9999" and float(cells[column]) * 1.2 >= 1000:
+            cells[column] = f'"{float(cells[column]) * 1.2:,.0f}"'
+        rows.append(",".join(cells))
+    config = _with_records(example, tmp_path, "grouped.csv", "\n".join(rows) + "\n")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "'solar_down' (rg)" in line and "',' as thousands separator" in line
+    assert "decimal = \",\"" not in line
+
+
+def test_typographic_minus_sign_reads_as_minus(example, tmp_path):
+    """NEE and air temperature written with the minus sign U+2212 (a word processor's or a
+    report's export) read as the same numbers as with the hyphen-minus (Unicode: U+2212
+    MINUS SIGN)."""
+    from fluxpart.io import read_site_config
+
+    text = example.with_suffix(".csv").read_text()
+    lines = text.splitlines()
+    typographic = [lines[0]] + [",".join(cell if cell == "-9999" else cell.replace("-", "\u2212")
+                                         for cell in line.split(",")) for line in lines[1:]]
+    plain = read_site_config(example).read()[0]
+    config = _with_records(example, tmp_path, "minus.csv", "\n".join(typographic) + "\n")
+    frame = read_site_config(config).read()[0]
+    assert "\u2212" in "\n".join(typographic)
+    pd.testing.assert_frame_equal(frame, plain)
