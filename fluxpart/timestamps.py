@@ -766,8 +766,17 @@ def clock_alignment_warning(starts: pd.DatetimeIndex, interval_minutes: int,
     if not off_grid.any():
         return None
     minute = offset[np.flatnonzero(off_grid)[0]] % 60
-    return (f"interval starts fall at minute {minute:g} of the hour, not on the "
-            f"{interval_minutes}-minute clock grid; check [input] time_marks = {setting_text(time_marks)}")
+    text = (f"interval starts fall at minute {minute:g} of the hour, not on the "
+            f"{interval_minutes}-minute clock grid ({int(off_grid.sum())} of {len(starts)} "
+            "records)")
+    # the stamp's place in its interval explains an offset of half an interval or a whole
+    # one from the declared place; any other offset is the clock's or the export's
+    half_off = np.mod(minute, interval_minutes) == interval_minutes / 2
+    if half_off:
+        return f"{text}; check [input] time_marks = {setting_text(time_marks)}"
+    return (f"{text}: read at their own times (the sun's position and the budget years' "
+            "edges follow them); a logger clock off by minutes, or stamps of the last minute "
+            "or second of each interval? Align the stamps in a copy of the file")
 
 
 def inserted_runs(inserted: pd.DatetimeIndex, interval_minutes: int) -> tuple[tuple, int]:

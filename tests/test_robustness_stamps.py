@@ -301,3 +301,20 @@ def test_summer_time_abbreviation_under_percent_capital_z_is_named():
     winter = parse_stamps(pd.Series(text[:1]), "%Y-%m-%d %H:%M %Z", time_columns=("stamp",),
                           source="t.csv", lines=np.arange(2, 3), utc_offset=1.0)
     assert list(winter.stamps) == [datetime(2021, 3, 28, 1, 30)]
+
+
+def test_off_grid_warning_names_time_marks_only_where_they_explain_the_offset():
+    """Interval starts half an interval off the grid are stamps of another place in the
+    interval (time_marks); starts one minute off (end stamps written at 00:29, 00:59) are
+    not, and the warning says so instead of sending the user to time_marks. Outside fact:
+    the clock arithmetic of Python's ``datetime``."""
+    from fluxpart.timestamps import clock_alignment_warning
+
+    on_grid = [datetime(2021, 6, 1) + timedelta(minutes=30 * k) for k in range(96)]
+    half = pd.DatetimeIndex([t + timedelta(minutes=15) for t in on_grid])
+    minute = pd.DatetimeIndex([t - timedelta(minutes=1) for t in on_grid])
+    assert clock_alignment_warning(pd.DatetimeIndex(on_grid), 30, "end") is None
+    assert 'time_marks = "end"' in clock_alignment_warning(half, 30, "end")
+    text = clock_alignment_warning(minute, 30, "end")
+    assert "minute 59 of the hour" in text and "time_marks" not in text
+    assert "Align the stamps" in text and "(96 of 96 records)" in text
