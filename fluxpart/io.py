@@ -1312,6 +1312,13 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
     options = {"dtype": str, "keep_default_na": False, "na_filter": False}
+    if delimiter == " " and "  " in next(
+            iter(text.splitlines()[rows_before_header:rows_before_header + 1]), "").strip():
+        # each space a delimiter: the padding of aligned columns becomes empty columns
+        raise InputFileError(
+            f"input file {str(path)!r}: the header (line {rows_before_header + 1}) separates "
+            "its names by runs of spaces, which [input] delimiter = \" \" reads as empty "
+            "columns: set [input] delimiter = \"whitespace\"")
     if delimiter == _WHITESPACE:
         options["sep"] = r"\s+"
     else:

@@ -419,3 +419,21 @@ def test_typographic_minus_sign_reads_as_minus(example, tmp_path):
     frame = read_site_config(config).read()[0]
     assert "\u2212" in "\n".join(typographic)
     pd.testing.assert_frame_equal(frame, plain)
+
+
+def test_single_space_delimiter_on_aligned_columns_names_whitespace(example, tmp_path, capsys):
+    """Columns aligned with runs of spaces read with delimiter = " " (every space a field
+    separator): the fix, delimiter = "whitespace", is named (was: a line with more
+    fields than the header, "a delimiter inside a value?")."""
+    rows = [line.split(",") for line in example.with_suffix(".csv").read_text().splitlines()]
+    aligned = "\n".join("".join(cell.rjust(20) for cell in row) for row in rows) + "\n"
+    config = _with_records(example, tmp_path, "aligned.txt", aligned)
+    text = config.read_text(encoding="utf-8")
+    config.write_text(text.replace('path = "aligned.txt"', 'path = "aligned.txt"\ndelimiter = " "'),
+                      encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    assert 'delimiter = "whitespace"' in _one_error(capsys)
+    config.write_text(text.replace('path = "aligned.txt"',
+                                   'path = "aligned.txt"\ndelimiter = "whitespace"'),
+                      encoding="utf-8")
+    assert main(["check", str(config)]) in (0, 1)
