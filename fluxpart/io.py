@@ -1246,12 +1246,15 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
     except OSError as error:
         raise InputFileError(f"input file {str(path)!r} cannot be read: {error}") from None
     refuse_binary(data, path)
-    if encoding is None:
-        if data.startswith(codecs.BOM_UTF8):
-            encoding = "utf-8-sig"
-        elif data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
-            encoding = "utf-16"
-        elif len(data) >= 4 and data[1] == 0 and data[3] == 0 and data[0] != 0:
+    # a byte-order mark names the encoding, also over [input] encoding: a file saved with
+    # one among files of a declared single-byte encoding (read as such, its header would
+    # begin with "ï»¿")
+    if data.startswith(codecs.BOM_UTF8):
+        encoding = "utf-8-sig"
+    elif data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
+        encoding = "utf-16"
+    elif encoding is None:
+        if len(data) >= 4 and data[1] == 0 and data[3] == 0 and data[0] != 0:
             encoding = "utf-16-le"
         elif len(data) >= 4 and data[0] == 0 and data[2] == 0 and data[1] != 0:
             encoding = "utf-16-be"

@@ -437,3 +437,25 @@ def test_single_space_delimiter_on_aligned_columns_names_whitespace(example, tmp
                                    'path = "aligned.txt"\ndelimiter = "whitespace"'),
                       encoding="utf-8")
     assert main(["check", str(config)]) in (0, 1)
+
+
+def test_byte_order_mark_decides_over_a_declared_encoding(example, tmp_path):
+    """Monthly files of a logger declared latin-1 (a degree sign in the units line), one
+    of them saved by another tool as UTF-8 with a byte-order mark: its mark decides, so
+    its header is not read as 'ï»¿stamp_end' (the mark's bytes EF BB BF in Latin-1).
+    Outside facts: Python's codecs.BOM_UTF8 and the Latin-1 code of the degree sign, 0xB0."""
+    from fluxpart.io import read_site_config
+
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    units = ",".join(["-", "umol m-2 s-1", "W m-2", "°C", "kPa", "m s-1", "°C", "%", "-"])
+    first = "\n".join([lines[0], units] + lines[1:9000]) + "\n"
+    second = "\n".join([lines[0], units] + lines[9000:]) + "\n"
+    (tmp_path / "th_1.csv").write_bytes(first.encode("latin-1"))
+    (tmp_path / "th_2.csv").write_bytes(codecs.BOM_UTF8 + second.encode("utf-8"))
+    assert "°C".encode("latin-1")[0] == 0xB0
+    config = tmp_path / "months.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"',
+        'path = "th_*.csv"\nencoding = "latin-1"\nrows_after_header = 1'), encoding="utf-8")
+    frame = read_site_config(config).read()[0]
+    pd.testing.assert_frame_equal(frame, read_site_config(example).read()[0])
