@@ -751,6 +751,15 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             warnings.append(f"input file {str(path_)!r} {error.what}: skipped (a logger file "
                             "opened as the power failed?); the other input files were read")
             continue
+        except (InputFileError, MissingColumnError) as error:
+            # a layout setting that would read this file would misread those read before
+            layout = re.search(r"set \[input\] (delimiter|decimal|encoding|rows_before_header|"
+                               r"rows_after_header) = ", str(error))
+            if not parts or layout is None:
+                raise
+            raise type(error)(f"{error}; but {parts[0]['source']!r} was read with the present "
+                              f"{layout.group(1)}: one [input] setting reads every file, so "
+                              "give this file the others' layout in a copy") from None
         found = (part["mapping"], part["flag_columns"])
         if mapping is not None and found != (mapping, flag_columns):
             raise InputFileError(f"{str(path_)!r} maps columns differently from "

@@ -459,3 +459,22 @@ def test_byte_order_mark_decides_over_a_declared_encoding(example, tmp_path):
         'path = "th_*.csv"\nencoding = "latin-1"\nrows_after_header = 1'), encoding="utf-8")
     frame = read_site_config(config).read()[0]
     pd.testing.assert_frame_equal(frame, read_site_config(example).read()[0])
+
+
+def test_layout_hint_for_one_of_several_files_says_the_setting_reads_them_all(example,
+                                                                              tmp_path,
+                                                                              capsys):
+    """A logger program changed its delimiter mid-year: the second file's hint (set
+    delimiter = ";") would misread the first; the error says one setting reads every file
+    and names the file already read with it."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    (tmp_path / "th_1.csv").write_text("\n".join(lines[:9000]) + "\n")
+    (tmp_path / "th_2.csv").write_text(
+        "\n".join(line.replace(",", ";") for line in [lines[0]] + lines[9000:]) + "\n")
+    config = tmp_path / "two.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', 'path = "th_*.csv"'), encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "th_2.csv" in line and 'delimiter = ";"' in line
+    assert "th_1.csv' was read with the present delimiter" in line
