@@ -1335,10 +1335,13 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
         options["sep"] = r"\s+"
     else:
         options["sep"] = delimiter
+    # the skipped lines emptied: a quote in a title or units line (3" for inches) would
+    # otherwise open a value the parser reads on through the records
+    parsed = _emptied_lines(text, skipped)
     try:
-        raw = pd.read_csv(_io.StringIO(text), skip_blank_lines=False,
+        raw = pd.read_csv(_io.StringIO(parsed), skip_blank_lines=False,
                           skiprows=skipped, **options)     # a set: no Python call per line
-        header = pd.read_csv(_io.StringIO(text), header=None, nrows=1,
+        header = pd.read_csv(_io.StringIO(parsed), header=None, nrows=1,
                              skiprows=rows_before_header, **options).iloc[0].tolist()
     except pd.errors.EmptyDataError:
         raise _EmptyFileError(f"input file {str(path)!r} is empty; expected a header line "
@@ -1351,7 +1354,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             raise InputFileError(_parser_message(path, delimiter, str(error))) from None
         # a quote opened and never closed: the parser names no line of the file
         text_lines = text.splitlines()
-        number = _unclosed_quote_line(text_lines)
+        number = _unclosed_quote_line(parsed.splitlines())
         shown = _shown_line(text_lines[number])
         if any(line.strip() for line in text_lines[number + 1:]) or warnings is None \
                 or number <= rows_before_header + rows_after_header + 1:
@@ -1491,6 +1494,19 @@ def _parser_message(path: Path, delimiter: str, error: str) -> str:
                 "in a copy of the file")
     return (f"input file {str(path)!r} cannot be parsed with delimiter {delimiter!r}: "
             f"{' '.join(error.split())}")
+
+
+def _emptied_lines(text: str, numbers: set) -> str:
+    """`text` with the lines of the given 0-based `numbers` emptied, line ends kept."""
+    if not numbers:
+        return text
+    pieces, start = [], 0
+    for index, end in enumerate(re.finditer(r"\r\n|\r|\n", text)):
+        if index > max(numbers):
+            break
+        pieces += ["" if index in numbers else text[start:end.start()], end.group()]
+        start = end.end()
+    return "".join(pieces) + text[start:]
 
 
 def _unclosed_quote_line(text_lines: list) -> int:
@@ -1951,7 +1967,13 @@ def _columns_listing(file_columns: list) -> str:
             if candidate in str(file_columns[0]):
                 return (f"the file's header is one cell holding {name}: set [input] "
                         f"delimiter = {toml}")
-    return f"the file has columns: {', '.join(repr(c) for c in file_columns)}"
+    listing = f"the file has columns: {', '.join(repr(c) for c in file_columns)}"
+    unnamed = [n for n, c in enumerate(file_columns, 1) if str(c).startswith("Unnamed: ")]
+    if unnamed:
+        # the parser's name for an empty header cell, e.g. a table saved with its row index
+        listing += (f"; column {unnamed[0]} has no name in the header (a table saved with "
+                    "its row index?): name it in the header of a copy of the file")
+    return listing
 
 
 # --------------------------------------------------------------------------- values

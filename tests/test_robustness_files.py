@@ -478,3 +478,33 @@ def test_layout_hint_for_one_of_several_files_says_the_setting_reads_them_all(ex
     line = _one_error(capsys)
     assert "th_2.csv" in line and 'delimiter = ";"' in line
     assert "th_1.csv' was read with the present delimiter" in line
+
+
+def test_quote_in_a_skipped_title_or_units_line_is_not_read_on(example, tmp_path):
+    """A units line whose last unit is the inch mark alone (", a snow depth column) lies in
+    the rows the config skips: the records after it read as without it (the parser had
+    read on from that opening quote to the end of the file: 'a header but no records')."""
+    from fluxpart.io import read_site_config
+
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    title = "Tamsworth heath TH-2, north mast"
+    units = '-,umol m-2 s-1,W m-2,C,kPa,m s-1,C,%,-,"'
+    config = _with_records(example, tmp_path, "quoted.csv", "\n".join(
+        [title, lines[0] + ",snow"] + [units] + [line + ",0" for line in lines[1:]]) + "\n")
+    config.write_text(config.read_text(encoding="utf-8").replace(
+        'path = "quoted.csv"', 'path = "quoted.csv"\nrows_before_header = 1\n'
+        'rows_after_header = 1'), encoding="utf-8")
+    frame = read_site_config(config).read()[0]
+    pd.testing.assert_frame_equal(frame, read_site_config(example).read()[0])
+
+
+def test_time_column_without_a_name_is_named_as_such(example, tmp_path, capsys):
+    """A table saved with its row index (the stamps) writes an empty first header cell:
+    the error says that column has no name, instead of listing the parser's 'Unnamed: 0'
+    alone."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    header = "," + lines[0].split(",", 1)[1]
+    config = _with_records(example, tmp_path, "indexed.csv", "\n".join([header] + lines[1:]))
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "time_column" in line and "column 1 has no name in the header" in line
