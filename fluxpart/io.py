@@ -1948,10 +1948,14 @@ def _near(name: str, options: list, taken=()) -> str:
         return ""
     if unicodedata.normalize("NFKC", close[0]) == unicodedata.normalize("NFKC", name):
         # shown alike by most fonts (a Greek mu typed for the file's micro sign)
-        odd = ", ".join(f"U+{ord(c):04X} {unicodedata.name(c, '')}".rstrip()
-                        for c in dict.fromkeys(name) if c not in close[0])
-        return (f" (did you mean {close[0]!r}? they differ only in look-alike characters, "
-                f"the setting has {odd}: copy the name from the file)")
+        def codes(text, other):
+            return ", ".join(f"U+{ord(c):04X} {unicodedata.name(c, '')}".rstrip()
+                             for c in dict.fromkeys(text) if c not in other)
+        escaped = "".join(c if c.isascii() and c.isprintable() else f"\\u{ord(c):04X}"
+                          for c in close[0])
+        return (f" (did you mean {close[0]!r}? they differ only in look-alike characters: "
+                f"the setting has {codes(name, close[0])} where the file has "
+                f"{codes(close[0], name)}; in TOML write \"{escaped}\")")
     return f" (did you mean {close[0]!r}?)"
 
 

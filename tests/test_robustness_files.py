@@ -358,6 +358,11 @@ def test_column_named_with_a_look_alike_character_says_so(example, tmp_path, cap
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "[input.columns] nee" in line and "U+03BC GREEK SMALL LETTER MU" in line
+    assert "U+00B5 MICRO SIGN" in line
+    suggested = line.split("in TOML write ")[1].split(")")[0]     # "fc_\u00B5mol"
+    config.write_text(config.read_text(encoding="utf-8").replace(
+        'nee = "fc_\u03bcmol"', f"nee = {suggested}"), encoding="utf-8")
+    assert main(["check", str(config)]) in (0, 1)
 
 
 @pytest.mark.parametrize("restart", ["title_header_units", "files_with_bom_joined"])
