@@ -139,10 +139,18 @@ def units_for(name: str) -> tuple[str, ...]:
     return tuple(_CONVERSIONS[name])
 
 
+#: Characters typed for the degree sign: the masculine ordinal (Spanish and Portuguese
+#: keyboards), the ring above and the superscript zero.
+_DEGREE_LOOK_ALIKES = str.maketrans({"\u00ba": "\u00b0", "\u02da": "\u00b0",
+                                     "\u2070": "\u00b0"})
+
+
 def _folded(unit: str) -> str:
-    """`unit` with look-alike characters folded: compatibility forms (NFKC: the micro sign
-    to the Greek mu, superscript digits to digits) and the minus sign to a hyphen."""
-    return unicodedata.normalize("NFKC", unit).replace("\u2212", "-")
+    """`unit` with look-alike characters folded: degree-sign look-alikes to the degree
+    sign, compatibility forms (NFKC: the micro sign to the Greek mu, superscript digits
+    to digits, ℃ to °C) and the minus sign to a hyphen."""
+    return unicodedata.normalize("NFKC", unit.translate(_DEGREE_LOOK_ALIKES)).replace(
+        "\u2212", "-")
 
 
 def unit_spelling(name: str, unit: str) -> str:
@@ -150,8 +158,9 @@ def unit_spelling(name: str, unit: str) -> str:
     look-alike characters; else `unit` unchanged.
 
     A unit copied from a file header or a paper is often typed with the Greek mu (U+03BC)
-    for the micro sign (U+00B5), which a font shows alike, or with superscripts
-    ("W m⁻²"); both name the same unit.
+    for the micro sign (U+00B5), which a font shows alike, with superscripts ("W m⁻²"),
+    or with the masculine ordinal (U+00BA) for the degree sign ("ºC"); each names the
+    same unit.
 
     Examples
     --------

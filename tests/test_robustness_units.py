@@ -206,7 +206,8 @@ def test_unit_typed_with_look_alike_characters_reads_as_the_unit(tmp_path):
     """A unit copied with the Greek mu (U+03BC) for the micro sign (U+00B5), or with
     superscripts ("W m⁻²"), names the same unit. Outside facts: the Unicode code
     points (U+00B5 MICRO SIGN, U+03BC GREEK SMALL LETTER MU, U+207B SUPERSCRIPT MINUS,
-    U+00B2 SUPERSCRIPT TWO) and their compatibility mappings (Unicode Standard Annex 15,
+    U+00B2 SUPERSCRIPT TWO, U+00BA MASCULINE ORDINAL INDICATOR typed for the degree sign
+    on Spanish keyboards) and their compatibility mappings (Unicode Standard Annex 15,
     NFKC, as Python's ``unicodedata`` implements it)."""
     import unicodedata
 
@@ -220,6 +221,10 @@ def test_unit_typed_with_look_alike_characters_reads_as_the_unit(tmp_path):
     assert unit_spelling("rg", "W m\u207b\u00b2") == "W m-2"
     assert unit_spelling("ppfd", "\u03bcmol m\u207b\u00b2 s\u207b\u00b9") == "\u00b5mol m-2 s-1"
     assert unit_spelling("vpd", "kpa") == "kpa"      # letter case is not a look-alike
+    assert unicodedata.name("\u00ba") == "MASCULINE ORDINAL INDICATOR"
+    for typed in ("\u00baC", "\u02daC", "\u2103"):     # ºC, ˚C, ℃ (DEGREE CELSIUS)
+        assert unit_spelling("tair", typed) == "\u00b0C"
+    assert unit_spelling("tsoil", "\u00baF") == "\u00b0F"
     starts = pd.date_range("2021-06-01", periods=96, freq="30min")
     sun = np.clip(np.sin((starts.hour + starts.minute / 60 - 6) / 12 * np.pi), 0, None)
     rng = np.random.default_rng(2)
