@@ -52,6 +52,7 @@ from .errors import (
     ImplausibleValueError,
     InputFileError,
     MissingColumnError,
+    TimestampError,
     UnitError,
 )
 from .site import Site
@@ -1649,6 +1650,9 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)
+    if rows_after_header:
+        _refuse_skipped_record(path, text, header, time_columns, time_format, delimiter,
+                               rows_before_header, rows_after_header, utc_offset, time_zone)
     values, missing_cells, nonfinite = {}, {}, {}
     read = {name: column for name, column in mapping.items() if (name, column) not in lacking}
     read |= {_flag_key(column): column for column in flag_columns
@@ -1690,6 +1694,35 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                            if parsed.rounded_to_minute else {}),
                         **({"date_only": parsed.date_only} if parsed.date_only else {})},
     }
+
+
+def _refuse_skipped_record(path: Path, text: str, header: list, time_columns: tuple,
+                           time_format: str, delimiter: str, rows_before_header: int,
+                           rows_after_header: int, utc_offset, time_zone) -> None:
+    """Raise where a line skipped as one of ``rows_after_header`` is a record: its stamp
+    reads under ``time_format`` (a file without the units line its neighbours have,
+    whose first record would be dropped unnoticed)."""
+    text_lines = text.splitlines()[:rows_before_header + 1 + rows_after_header]
+    for number in range(rows_before_header + 1, len(text_lines)):
+        line = text_lines[number]
+        cells = (line.split() if delimiter == _WHITESPACE
+                 else next(csv.reader([line], delimiter=delimiter), []))
+        cells = [cell.strip() for cell in cells]
+        if len(cells) < len(header) or any(c not in header for c in time_columns):
+            continue
+        stamp = pd.Series([" ".join(cells[header.index(c)] for c in time_columns)])
+        try:
+            parse_stamps(stamp, time_format, time_columns=time_columns, source=str(path),
+                         lines=np.array([number + 1]), utc_offset=utc_offset,
+                         time_zone=time_zone)
+        except TimestampError:
+            continue
+        raise InputFileError(
+            f"input file {str(path)!r}: line {number + 1} ({_shown_line(line)!r}), skipped as "
+            f"one of [input] rows_after_header = {rows_after_header}, is a record (its stamp "
+            f"{stamp.iloc[0]!r} reads under time_format): the file has fewer lines under its "
+            "header than the setting skips (no units line?); give every input file the same "
+            "layout in a copy")
 
 
 #: Mapped variables a file among several may lack, read as missing for its records: a

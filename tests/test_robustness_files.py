@@ -513,3 +513,20 @@ def test_time_column_without_a_name_is_named_as_such(example, tmp_path, capsys):
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "time_column" in line and "column 1 has no name in the header" in line
+
+
+def test_record_skipped_as_a_units_line_is_refused(example, tmp_path, capsys):
+    """Monthly files with a units line under the header, one of them without it: with
+    rows_after_header = 1 its first record was skipped as the units line, unnoticed (one
+    record of the year lost, check without a problem). Now named at its line."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    units = "-,umol m-2 s-1,W m-2,C,kPa,m s-1,C,%,-"
+    (tmp_path / "th_1.csv").write_text("\n".join([lines[0], units] + lines[1:9000]) + "\n")
+    (tmp_path / "th_2.csv").write_text("\n".join([lines[0]] + lines[9000:]) + "\n")
+    config = tmp_path / "months.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', 'path = "th_*.csv"\nrows_after_header = 1'),
+        encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "th_2.csv': line 2 (" in line and "rows_after_header = 1, is a record" in line
