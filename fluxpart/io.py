@@ -1008,7 +1008,9 @@ def _resolve_paths(value, folder: Path) -> tuple:
                               f"site config or in full (e.g. {str(Path(item).expanduser())!r})")
         if _GLOB_CHARACTERS & set(item):
             pattern = item if Path(item).is_absolute() else str(folder / item)
-            matches = sorted(Path(p) for p in glob.glob(pattern) if Path(p).is_file())
+            # "**" spans any depth of folders (logger/2021/06/...), as in [batch] sites
+            matches = sorted(Path(p) for p in glob.glob(pattern, recursive=True)
+                             if Path(p).is_file())
             if not matches:
                 raise ConfigError(f"[input] path = {setting_text(item)} matches no file in "
                                   f"{str(Path(pattern).parent)!r}")

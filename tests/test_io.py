@@ -1018,6 +1018,21 @@ def test_glob_and_list_in_site_config(tmp_path):
         read_site_config(_site_toml(tmp_path, csv="none_*.csv"))
 
 
+def test_double_star_glob_reaches_folders_of_any_depth(tmp_path):
+    """Logger files kept in year/month folders: "logger/**/*.csv" reads all of them, as
+    "**" does in [batch] sites and in Python's glob with recursive=True (before, "**" was a
+    single folder level and matched nothing at two)."""
+    records = _records(periods=200)
+    _write(tmp_path / "tower.csv", records, marks="end")
+    for part, rows in (("2021/05", slice(0, 100)), ("2021/06", slice(100, 200))):
+        (tmp_path / "logger" / part).mkdir(parents=True)
+        _write(tmp_path / "logger" / part / "tower.csv", records.iloc[rows], marks="end")
+    deep = read_site_config(_site_toml(tmp_path, csv="logger/**/*.csv"))
+    assert [p.parent.name for p in deep.input_paths] == ["05", "06"]
+    pd.testing.assert_frame_equal(deep.read()[0],
+                                  read_site_config(_site_toml(tmp_path)).read()[0])
+
+
 def test_glob_matching_the_site_config_is_refused_naming_it(tmp_path):
     """A pattern as wide as "*" also takes the site config beside the data: refused naming
     the TOML file and the fix. Before, the first TOML was read as a table and the error said
