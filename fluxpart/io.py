@@ -35,6 +35,7 @@ import hashlib
 import io as _io
 import math
 import re
+import unicodedata
 from dataclasses import dataclass, field, fields
 from pathlib import Path
 
@@ -51,6 +52,7 @@ from .errors import (
     ImplausibleValueError,
     InputFileError,
     MissingColumnError,
+    TimestampError,
     UnitError,
 )
 from .site import Site
@@ -78,6 +80,7 @@ from .variables import (
     REQUIRED,
     VARIABLES,
     to_canonical,
+    unit_spelling,
     units_for,
     vpd_from_rh,
 )
@@ -117,10 +120,13 @@ _FLOAT_SPELLINGS_OF_NAN = ("nan", "+nan", "-nan")
 _WHITESPACE = "whitespace"
 _GLOB_CHARACTERS = set("*?[")
 #: A number written with digit grouping (thousands separators) for each decimal mark:
-#: "1.034,5" or "1.034" where the decimal mark is a comma, "1,034.5" where it is a point.
-#: A leading 0 is never grouped ("0.125" is a decimal point in a mixed file).
+#: "1.034,5" or "1.034" where the decimal mark is a comma, "1,034.5" or "1,034" where it
+#: is a point. A leading 0 is never grouped ("0.125" is a decimal point in a mixed file).
 _DIGIT_GROUPING = {",": re.compile(r"[+-]?[1-9]\d{0,2}(?:\.\d{3})+(?:,\d*)?"),
-                   ".": re.compile(r"[+-]?[1-9]\d{0,2}(?:,\d{3})+\.\d*")}
+                   ".": re.compile(r"[+-]?[1-9]\d{0,2}(?:,\d{3})+(?:\.\d*)?")}
+#: Digit grouping by a character that is never a decimal mark: an apostrophe (Swiss
+#: spreadsheets), a right single quote, or a space (plain, no-break, narrow no-break, thin).
+_OTHER_GROUPING = re.compile(r"[+-]?[1-9]\d{0,2}(?:['\u2019 \u00a0\u202f\u2009]\d{3})+(?:[.,]\d*)?")
 
 
 @dataclass(frozen=True)
@@ -544,7 +550,7 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
         raise ConfigError(f"[input] time_format = {setting_text(input_table['time_format'])}: expected a "
                           "non-empty string such as \"%Y-%m-%d %H:%M\"")
     columns = _string_table(input_table["columns"], "[input.columns]")
-    units = _string_table(input_table.get("units", {}), "[input.units]")
+    units = _unit_spellings(_string_table(input_table.get("units", {}), "[input.units]"))
     _check_mapping(columns, units)
     time_zone = input_table.get("time_zone")
     if time_zone is not None:
@@ -700,7 +706,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     paths = _as_paths(path)
     columns, flag_columns = _split_flag_columns(columns)
     columns = _string_table(columns, "[input.columns]")
-    units = _string_table(dict(units or {}), "[input.units]")
+    units = _unit_spellings(_string_table(dict(units or {}), "[input.units]"))
     _check_mapping(columns, units, flag_columns)
     time_columns = _check_time_column(time_column)
     time_marks = _check_time_marks(time_marks)
@@ -746,6 +752,15 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             warnings.append(f"input file {str(path_)!r} {error.what}: skipped (a logger file "
                             "opened as the power failed?); the other input files were read")
             continue
+        except (InputFileError, MissingColumnError) as error:
+            # a layout setting that would read this file would misread those read before
+            layout = re.search(r"set \[input\] (delimiter|decimal|encoding|rows_before_header|"
+                               r"rows_after_header) = ", str(error))
+            if not parts or layout is None:
+                raise
+            raise type(error)(f"{error}; but {parts[0]['source']!r} was read with the present "
+                              f"{layout.group(1)}: one [input] setting reads every file, so "
+                              "give this file the others' layout in a copy") from None
         found = (part["mapping"], part["flag_columns"])
         if mapping is not None and found != (mapping, flag_columns):
             raise InputFileError(f"{str(path_)!r} maps columns differently from "
@@ -993,7 +1008,9 @@ def _resolve_paths(value, folder: Path) -> tuple:
                               f"site config or in full (e.g. {str(Path(item).expanduser())!r})")
         if _GLOB_CHARACTERS & set(item):
             pattern = item if Path(item).is_absolute() else str(folder / item)
-            matches = sorted(Path(p) for p in glob.glob(pattern) if Path(p).is_file())
+            # "**" spans any depth of folders (logger/2021/06/...), as in [batch] sites
+            matches = sorted(Path(p) for p in glob.glob(pattern, recursive=True)
+                             if Path(p).is_file())
             if not matches:
                 raise ConfigError(f"[input] path = {setting_text(item)} matches no file in "
                                   f"{str(Path(pattern).parent)!r}")
@@ -1089,6 +1106,12 @@ def _check_mapping(columns: dict, units: dict, flag_columns: tuple = ()) -> None
                                 f"unit for {name}; did you mean {setting_text(same[0])}? (unit "
                                 "symbols are case-sensitive)")
         to_canonical(np.empty(0), name, unit, interval_minutes=30)  # UnitError lists units
+
+
+def _unit_spellings(units: dict) -> dict:
+    """`units` with each spelling that differs from an accepted one only in look-alike
+    characters (Greek mu, superscripts, minus sign) replaced by it."""
+    return {name: unit_spelling(name, unit) for name, unit in units.items()}
 
 
 def _check_time_marks(value) -> str:
@@ -1235,12 +1258,15 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
     except OSError as error:
         raise InputFileError(f"input file {str(path)!r} cannot be read: {error}") from None
     refuse_binary(data, path)
-    if encoding is None:
-        if data.startswith(codecs.BOM_UTF8):
-            encoding = "utf-8-sig"
-        elif data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
-            encoding = "utf-16"
-        elif len(data) >= 4 and data[1] == 0 and data[3] == 0 and data[0] != 0:
+    # a byte-order mark names the encoding, also over [input] encoding: a file saved with
+    # one among files of a declared single-byte encoding (read as such, its header would
+    # begin with "ï»¿")
+    if data.startswith(codecs.BOM_UTF8):
+        encoding = "utf-8-sig"
+    elif data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
+        encoding = "utf-16"
+    elif encoding is None:
+        if len(data) >= 4 and data[1] == 0 and data[3] == 0 and data[0] != 0:
             encoding = "utf-16-le"
         elif len(data) >= 4 and data[0] == 0 and data[2] == 0 and data[1] != 0:
             encoding = "utf-16-be"
@@ -1254,8 +1280,9 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
             f"input file {str(path)!r} is not {encoding} text (byte 0x{data[error.start]:02x} "
             f"on line {line}); set [input] encoding = \"latin-1\" (or \"cp1252\", or "
             "\"utf-16\") to the encoding it was written in") from None
-    if text.startswith("\ufeff"):
-        text = text[1:]
+    # the byte-order mark, also where files saved with one were joined end to end (a
+    # header line starting with U+FEFF then is not the header line it repeats)
+    text = text.replace("\ufeff", "")
     nul = text.find("\x00")
     if nul >= 0 and text.count("\x00") >= len(text) / 4:
         raise InputFileError(f"input file {str(path)!r} is read as {encoding} but every other "
@@ -1300,14 +1327,24 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
     options = {"dtype": str, "keep_default_na": False, "na_filter": False}
+    if delimiter == " " and "  " in next(
+            iter(text.splitlines()[rows_before_header:rows_before_header + 1]), "").strip():
+        # each space a delimiter: the padding of aligned columns becomes empty columns
+        raise InputFileError(
+            f"input file {str(path)!r}: the header (line {rows_before_header + 1}) separates "
+            "its names by runs of spaces, which [input] delimiter = \" \" reads as empty "
+            "columns: set [input] delimiter = \"whitespace\"")
     if delimiter == _WHITESPACE:
         options["sep"] = r"\s+"
     else:
         options["sep"] = delimiter
+    # the skipped lines emptied: a quote in a title or units line (3" for inches) would
+    # otherwise open a value the parser reads on through the records
+    parsed = _emptied_lines(text, skipped)
     try:
-        raw = pd.read_csv(_io.StringIO(text), skip_blank_lines=False,
+        raw = pd.read_csv(_io.StringIO(parsed), skip_blank_lines=False,
                           skiprows=skipped, **options)     # a set: no Python call per line
-        header = pd.read_csv(_io.StringIO(text), header=None, nrows=1,
+        header = pd.read_csv(_io.StringIO(parsed), header=None, nrows=1,
                              skiprows=rows_before_header, **options).iloc[0].tolist()
     except pd.errors.EmptyDataError:
         raise _EmptyFileError(f"input file {str(path)!r} is empty; expected a header line "
@@ -1316,13 +1353,31 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                                                if rows_before_header else ""),
                               "is empty" if not text else "holds only blank lines") from None
     except pd.errors.ParserError as error:
-        raise InputFileError(_parser_message(path, delimiter, str(error))) from None
+        if "EOF inside string" not in str(error):
+            raise InputFileError(_parser_message(path, delimiter, str(error))) from None
+        # a quote opened and never closed: the parser names no line of the file
+        text_lines = text.splitlines()
+        number = _unclosed_quote_line(parsed.splitlines())
+        shown = _shown_line(text_lines[number])
+        if any(line.strip() for line in text_lines[number + 1:]) or warnings is None \
+                or number <= rows_before_header + rows_after_header + 1:
+            raise InputFileError(
+                f"input file {str(path)!r}: line {number + 1} ({shown!r}) opens a quote (\") "
+                "that no later line closes, so the parser would read the rest of the file "
+                "as one value; close or delete the quote in a copy of the file") from None
+        # the last line, cut inside a quoted value (a logger stopped mid-write)
+        warnings.append(f"input file {str(path)!r}: its last line ({number + 1}: {shown!r}) "
+                        "ends inside a quoted value, a record cut short (a logger stopped "
+                        "mid-write): dropped")
+        return _read_text(path, "\n".join(text_lines[:number]) + "\n", delimiter,
+                          rows_before_header, rows_after_header, warnings)
     first_line = rows_before_header + rows_after_header + 2
     raw = _trailing_fields(path, raw, first_line)
     blank = _blank_rows(raw)
     lines = np.arange(len(raw)) + first_line
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
+    _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
     named = _named_width(header)
     raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings, named)
     unnamed_surplus = 0
@@ -1342,6 +1397,31 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
     return raw, lines, [str(h).strip() for h in header], unnamed_surplus
+
+
+def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
+                            rows_after_header: int) -> None:
+    """Raise where the header line repeats among the records: a logger restarted its
+    program and wrote its title, header and units lines again, or files were joined end
+    to end. Named before the lines around it (a title of one field reads as a record
+    cut short)."""
+    text_lines = text.splitlines()
+    if rows_before_header >= len(text_lines):
+        return
+    header_line = text_lines[rows_before_header].strip()
+    if not header_line or text.count(header_line) < 2:     # one C pass; most files stop here
+        return
+    first_data = rows_before_header + rows_after_header + 1
+    again = next((number for number, line in enumerate(text_lines[first_data:], first_data)
+                  if line.strip() == header_line), None)
+    if again is None:
+        return
+    around = ("; the title and units lines around it too" if rows_before_header
+              or rows_after_header else "")
+    raise InputFileError(
+        f"input file {str(path)!r}: line {again + 1} repeats the header line (a logger "
+        "program restarted, or files joined end to end?): in a copy of the file, remove it"
+        f"{around}, or split the file there and list the parts in [input] path")
 
 
 def _named_width(header: list) -> int:
@@ -1417,6 +1497,28 @@ def _parser_message(path: Path, delimiter: str, error: str) -> str:
                 "in a copy of the file")
     return (f"input file {str(path)!r} cannot be parsed with delimiter {delimiter!r}: "
             f"{' '.join(error.split())}")
+
+
+def _emptied_lines(text: str, numbers: set) -> str:
+    """`text` with the lines of the given 0-based `numbers` emptied, line ends kept."""
+    if not numbers:
+        return text
+    pieces, start = [], 0
+    for index, end in enumerate(re.finditer(r"\r\n|\r|\n", text)):
+        if index > max(numbers):
+            break
+        pieces += ["" if index in numbers else text[start:end.start()], end.group()]
+        start = end.end()
+    return "".join(pieces) + text[start:]
+
+
+def _unclosed_quote_line(text_lines: list) -> int:
+    """Index of the line opening the quote that the file never closes: the last line
+    after which an odd number of quote characters has been read (a doubled quote inside
+    a quoted value counts two; a quoted value may span lines)."""
+    odd = np.cumsum([line.count('"') for line in text_lines]) % 2 == 1
+    opened = np.flatnonzero(odd & ~np.concatenate([[False], odd[:-1]]))
+    return int(opened[-1]) if opened.size else len(text_lines) - 1
 
 
 def _field_count(line: str, delimiter: str) -> int:
@@ -1550,6 +1652,9 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)
+    if rows_after_header:
+        _refuse_skipped_record(path, text, header, time_columns, time_format, delimiter,
+                               rows_before_header, rows_after_header, utc_offset, time_zone)
     values, missing_cells, nonfinite = {}, {}, {}
     read = {name: column for name, column in mapping.items() if (name, column) not in lacking}
     read |= {_flag_key(column): column for column in flag_columns
@@ -1591,6 +1696,35 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                            if parsed.rounded_to_minute else {}),
                         **({"date_only": parsed.date_only} if parsed.date_only else {})},
     }
+
+
+def _refuse_skipped_record(path: Path, text: str, header: list, time_columns: tuple,
+                           time_format: str, delimiter: str, rows_before_header: int,
+                           rows_after_header: int, utc_offset, time_zone) -> None:
+    """Raise where a line skipped as one of ``rows_after_header`` is a record: its stamp
+    reads under ``time_format`` (a file without the units line its neighbours have,
+    whose first record would be dropped unnoticed)."""
+    text_lines = text.splitlines()[:rows_before_header + 1 + rows_after_header]
+    for number in range(rows_before_header + 1, len(text_lines)):
+        line = text_lines[number]
+        cells = (line.split() if delimiter == _WHITESPACE
+                 else next(csv.reader([line], delimiter=delimiter), []))
+        cells = [cell.strip() for cell in cells]
+        if len(cells) < len(header) or any(c not in header for c in time_columns):
+            continue
+        stamp = pd.Series([" ".join(cells[header.index(c)] for c in time_columns)])
+        try:
+            parse_stamps(stamp, time_format, time_columns=time_columns, source=str(path),
+                         lines=np.array([number + 1]), utc_offset=utc_offset,
+                         time_zone=time_zone)
+        except TimestampError:
+            continue
+        raise InputFileError(
+            f"input file {str(path)!r}: line {number + 1} ({_shown_line(line)!r}), skipped as "
+            f"one of [input] rows_after_header = {rows_after_header}, is a record (its stamp "
+            f"{stamp.iloc[0]!r} reads under time_format): the file has fewer lines under its "
+            "header than the setting skips (no units line?); give every input file the same "
+            "layout in a copy")
 
 
 #: Mapped variables a file among several may lack, read as missing for its records: a
@@ -1845,7 +1979,19 @@ def _near(name: str, options: list, taken=()) -> str:
     if not close:
         stripped = [o for o in free if o.strip() == name.strip()]
         close = stripped[:1]
-    return f" (did you mean {close[0]!r}?)" if close else ""
+    if not close:
+        return ""
+    if unicodedata.normalize("NFKC", close[0]) == unicodedata.normalize("NFKC", name):
+        # shown alike by most fonts (a Greek mu typed for the file's micro sign)
+        def codes(text, other):
+            return ", ".join(f"U+{ord(c):04X} {unicodedata.name(c, '')}".rstrip()
+                             for c in dict.fromkeys(text) if c not in other)
+        escaped = "".join(c if c.isascii() and c.isprintable() else f"\\u{ord(c):04X}"
+                          for c in close[0])
+        return (f" (did you mean {close[0]!r}? they differ only in look-alike characters: "
+                f"the setting has {codes(name, close[0])} where the file has "
+                f"{codes(close[0], name)}; in TOML write \"{escaped}\")")
+    return f" (did you mean {close[0]!r}?)"
 
 
 #: Delimiters a one-cell header may reveal: character, its name, the TOML value that sets it
@@ -1860,7 +2006,13 @@ def _columns_listing(file_columns: list) -> str:
             if candidate in str(file_columns[0]):
                 return (f"the file's header is one cell holding {name}: set [input] "
                         f"delimiter = {toml}")
-    return f"the file has columns: {', '.join(repr(c) for c in file_columns)}"
+    listing = f"the file has columns: {', '.join(repr(c) for c in file_columns)}"
+    unnamed = [n for n, c in enumerate(file_columns, 1) if str(c).startswith("Unnamed: ")]
+    if unnamed:
+        # the parser's name for an empty header cell, e.g. a table saved with its row index
+        listing += (f"; column {unnamed[0]} has no name in the header (a table saved with "
+                    "its row index?): name it in the header of a copy of the file")
+    return listing
 
 
 # --------------------------------------------------------------------------- values
@@ -1899,7 +2051,8 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
         # numbers (handled with the numeric codes below) and nothing is "not a number"
         numbers, is_code = plain
         return _apply_numeric_codes(numbers, is_code, missing, decimal)
-    cleaned = text.str.strip()
+    # a typographic minus sign (U+2212, word processors and some report exports) is a minus
+    cleaned = text.str.strip().str.replace("\u2212", "-", regex=False)
     folded = cleaned.str.casefold()
     string_codes = {str(c).strip().casefold() for c in missing if isinstance(c, str)}
     is_code = folded.isin(string_codes).to_numpy() | (cleaned == "").to_numpy() \
@@ -1917,6 +2070,14 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
                 pd.to_numeric(cell.replace(",", "."), errors="coerce")):
             hint = ("; it looks like a decimal comma: set [input] decimal = \",\" (and the "
                     "delimiter, e.g. delimiter = \";\")")
+            if _DIGIT_GROUPING["."].fullmatch(cell):
+                hint += (", unless it is a thousands separator (1,034 for 1034): then write "
+                         "the numbers without digit grouping in a copy of the file")
+        elif _OTHER_GROUPING.fullmatch(cell):
+            # listed as a missing code it would blank every value of 1000 or more
+            hint = ("; it is a number with digit grouping (a thousands separator): write the "
+                    "numbers without digit grouping in a copy of the file (a spreadsheet's "
+                    "number format without the 1000 separator)")
         elif name.startswith("nee_flag"):
             # a missing flag rejects nothing, so "add it to missing" would keep bad records
             hint = ("; site flags must be numbers (a record is kept where its flag is in "
@@ -1938,7 +2099,8 @@ def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: 
     1.034, not 1034 (an Rg or PPFD above 1000 turned into a value near 1, silently); a
     "1.034,5" or "1,034.5" is not a number at all. A "1.034" counts as grouped only in a
     column that uses decimal commas elsewhere (a column written with decimal points is
-    read as such).
+    read as such), and a "1,034" with ``decimal = "."`` only in a column that uses decimal
+    points elsewhere (the decimal-comma hint would have turned 1034 into 1.034).
     """
     grouping = "." if decimal == "," else ","
     candidates = cleaned.str.contains(grouping, regex=False).to_numpy(dtype=bool)
@@ -1947,10 +2109,10 @@ def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: 
     pattern = _DIGIT_GROUPING[decimal]
     cells = cleaned[candidates]
     grouped = cells.str.fullmatch(pattern).to_numpy(dtype=bool)
-    if decimal == ",":
-        both = cells.str.contains(",", regex=False).to_numpy(dtype=bool)
-        if not cleaned.str.contains(",", regex=False).any():
-            grouped = grouped & both
+    if not cleaned.str.contains(decimal, regex=False).any():
+        # "1.034" (decimal comma) or "1,034" (decimal point) without the decimal mark in
+        # the column: it may be a decimal mark of the other kind, named as such elsewhere
+        grouped = grouped & cells.str.contains(decimal, regex=False).to_numpy(dtype=bool)
     if not grouped.any():
         return
     first = int(np.flatnonzero(candidates)[np.flatnonzero(grouped)[0]])

@@ -395,6 +395,23 @@ def _other_format(stamp: str, time_format: str) -> str:
     return ""
 
 
+def _fraction_hint(failed: pd.Series, time_format: str) -> str:
+    """A hint where stamps that fail hold numbers with a decimal fraction (a decimal day
+    of year or hour; integers saved from a table of floating-point numbers), else ''."""
+    if "." in time_format or time_format.upper() == "ISO8601":
+        return ""
+    fractions = failed.str.extractall(r"(?<![\d.])\d+\.(\d+)(?![\d.])")
+    if fractions.empty:
+        return ""
+    if fractions[0].str.fullmatch("0+").all():
+        return ("the time fields are whole numbers written with a decimal fraction ("
+                f"{failed.iloc[0].strip()!r}, as a table of floating-point numbers is saved): "
+                "write them as integers in a copy of the file")
+    return ("the stamps hold decimal fractions (a decimal day of year or hour?), which no "
+            "time_format reads: write the column as dates and times in a copy of the file "
+            "(e.g. 2021-06-01 13:30) and set time_format to match")
+
+
 def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, source: str,
                  lines: np.ndarray, utc_offset: float | None = None,
                  time_zone: str | None = None, rows_after_header: int = 0) -> ParsedStamps:
@@ -518,6 +535,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "and with [input] time_zone = \"Area/City\"")
         elif _numeric_clock(text):
             hint = "; " + _numeric_clock(text)
+        elif _fraction_hint(text[failed], time_format):
+            hint = "; " + _fraction_hint(text[failed], time_format)
         elif _other_format(text.iloc[first], time_format):
             hint = "; " + _other_format(text.iloc[first], time_format)
         elif "%" not in time_format and time_format.upper() != "ISO8601":
@@ -766,8 +785,17 @@ def clock_alignment_warning(starts: pd.DatetimeIndex, interval_minutes: int,
     if not off_grid.any():
         return None
     minute = offset[np.flatnonzero(off_grid)[0]] % 60
-    return (f"interval starts fall at minute {minute:g} of the hour, not on the "
-            f"{interval_minutes}-minute clock grid; check [input] time_marks = {setting_text(time_marks)}")
+    text = (f"interval starts fall at minute {minute:g} of the hour, not on the "
+            f"{interval_minutes}-minute clock grid ({int(off_grid.sum())} of {len(starts)} "
+            "records)")
+    # the stamp's place in its interval explains an offset of half an interval or a whole
+    # one from the declared place; any other offset is the clock's or the export's
+    half_off = np.mod(minute, interval_minutes) == interval_minutes / 2
+    if half_off:
+        return f"{text}; check [input] time_marks = {setting_text(time_marks)}"
+    return (f"{text}: read at their own times (the sun's position and the budget years' "
+            "edges follow them); a logger clock off by minutes, or stamps of the last minute "
+            "or second of each interval? Align the stamps in a copy of the file")
 
 
 def inserted_runs(inserted: pd.DatetimeIndex, interval_minutes: int) -> tuple[tuple, int]:

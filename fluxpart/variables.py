@@ -8,6 +8,7 @@ relative humidity and air temperature by :func:`vpd_from_rh`.
 
 from __future__ import annotations
 
+import unicodedata
 from dataclasses import dataclass
 
 import numpy as np
@@ -24,6 +25,7 @@ __all__ = [
     "Variable",
     "saturation_vapour_pressure",
     "to_canonical",
+    "unit_spelling",
     "units_for",
     "vpd_from_rh",
 ]
@@ -135,6 +137,43 @@ PER_INTERVAL_UNITS = frozenset({("rg", "MJ m-2"), ("nee", "g C m-2")})
 def units_for(name: str) -> tuple[str, ...]:
     """Return the unit spellings accepted for canonical variable `name`."""
     return tuple(_CONVERSIONS[name])
+
+
+#: Characters typed for the degree sign: the masculine ordinal (Spanish and Portuguese
+#: keyboards), the ring above and the superscript zero.
+_DEGREE_LOOK_ALIKES = str.maketrans({"\u00ba": "\u00b0", "\u02da": "\u00b0",
+                                     "\u2070": "\u00b0"})
+
+
+def _folded(unit: str) -> str:
+    """`unit` with look-alike characters folded: degree-sign look-alikes to the degree
+    sign, compatibility forms (NFKC: the micro sign to the Greek mu, superscript digits
+    to digits, ℃ to °C) and the minus sign to a hyphen."""
+    return unicodedata.normalize("NFKC", unit.translate(_DEGREE_LOOK_ALIKES)).replace(
+        "\u2212", "-")
+
+
+def unit_spelling(name: str, unit: str) -> str:
+    """The accepted spelling of `unit` for variable `name`, where they differ only in
+    look-alike characters; else `unit` unchanged.
+
+    A unit copied from a file header or a paper is often typed with the Greek mu (U+03BC)
+    for the micro sign (U+00B5), which a font shows alike, with superscripts ("W m⁻²"),
+    or with the masculine ordinal (U+00BA) for the degree sign ("ºC"); each names the
+    same unit.
+
+    Examples
+    --------
+    >>> unit_spelling("rg", "W m\u207b\u00b2")
+    'W m-2'
+    >>> unit_spelling("nee", "\u03bcmol m-2 s-1") == "\u00b5mol m-2 s-1"
+    True
+    """
+    table = _CONVERSIONS.get(name, {})
+    if not isinstance(unit, str) or unit in table:
+        return unit
+    same = [spelling for spelling in table if _folded(spelling) == _folded(unit)]
+    return same[0] if same else unit
 
 
 def to_canonical(values, name: str, unit: str | None = None, *,

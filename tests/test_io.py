@@ -1018,6 +1018,21 @@ def test_glob_and_list_in_site_config(tmp_path):
         read_site_config(_site_toml(tmp_path, csv="none_*.csv"))
 
 
+def test_double_star_glob_reaches_folders_of_any_depth(tmp_path):
+    """Logger files kept in year/month folders: "logger/**/*.csv" reads all of them, as
+    "**" does in [batch] sites and in Python's glob with recursive=True (before, "**" was a
+    single folder level and matched nothing at two)."""
+    records = _records(periods=200)
+    _write(tmp_path / "tower.csv", records, marks="end")
+    for part, rows in (("2021/05", slice(0, 100)), ("2021/06", slice(100, 200))):
+        (tmp_path / "logger" / part).mkdir(parents=True)
+        _write(tmp_path / "logger" / part / "tower.csv", records.iloc[rows], marks="end")
+    deep = read_site_config(_site_toml(tmp_path, csv="logger/**/*.csv"))
+    assert [p.parent.name for p in deep.input_paths] == ["05", "06"]
+    pd.testing.assert_frame_equal(deep.read()[0],
+                                  read_site_config(_site_toml(tmp_path)).read()[0])
+
+
 def test_glob_matching_the_site_config_is_refused_naming_it(tmp_path):
     """A pattern as wide as "*" also takes the site config beside the data: refused naming
     the TOML file and the fix. Before, the first TOML was read as a table and the error said
@@ -1067,6 +1082,31 @@ def test_last_line_cut_short_is_dropped_and_named(tmp_path):
     pd.testing.assert_frame_equal(frame, _read(path)[0].iloc[:-1], check_freq=False)
     named = [w for w in report.warnings if "cut.csv" in w and "last line (201: " in w]
     assert len(named) == 1 and "dropped" in named[0]
+
+
+def test_last_line_cut_inside_a_quote_is_dropped_and_a_quote_left_open_named(tmp_path):
+    """Quoted stamps (as csv writers quote text): a last line cut inside its quote is
+    dropped like any cut last line; a quote opened mid-file and never closed is refused
+    naming its line (the parser's own message, "EOF inside string", named no line of the
+    file; review six of logger layouts)."""
+    records = _records(periods=200)
+    path = _write(tmp_path / "t.csv", records)
+    lines = [f'"{stamp}",{rest}' for stamp, rest in
+             (line.split(",", 1) for line in path.read_text().splitlines())]
+    quoted = tmp_path / "quoted.csv"
+    quoted.write_text("\n".join(lines) + "\n")
+    cut = tmp_path / "cut.csv"
+    cut.write_text("\n".join(lines + ['"2021-06-05 00:0']))
+    frame, report = _read(cut)
+    pd.testing.assert_frame_equal(frame, _read(quoted)[0], check_freq=False)
+    named = [w for w in report.warnings if "cut.csv" in w and "last line (202: " in w]
+    assert len(named) == 1 and "quoted value" in named[0] and "dropped" in named[0]
+    plain = path.read_text().splitlines()
+    plain[60] = plain[60].replace(",", ',"', 1)          # 'stamp,"3.518,0.0,...'
+    opened = tmp_path / "open.csv"
+    opened.write_text("\n".join(plain) + "\n")
+    with pytest.raises(InputFileError, match=r"'.*open.csv': line 61 \('[^']*'\) opens a quote"):
+        _read(opened)
 
 
 def test_short_line_inside_a_file_is_an_error_naming_it(tmp_path):

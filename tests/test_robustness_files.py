@@ -12,6 +12,7 @@ import gzip
 import zipfile
 from pathlib import Path
 
+import pandas as pd
 import pytest
 
 from fluxpart.cli import main
@@ -286,6 +287,28 @@ def test_thousands_separator_beside_decimal_point_is_named(example, tmp_path, ca
     assert "'solar_down' (rg)" in line and "thousands separator" in line
 
 
+@pytest.mark.parametrize("separator", ["'", "\u202f", " "])
+def test_thousands_separator_that_is_no_decimal_mark_is_named(example, tmp_path, capsys,
+                                                              separator):
+    """'1'034.1' (Swiss spreadsheets) or '1 034.1' with a (narrow no-break) space: named as
+    digit grouping; "add it to [input] missing" would blank every Rg of 1000 W m-2 or more.
+    Outside fact: the apostrophe and the narrow no-break space (U+202F) as thousands
+    separators of Swiss and French number formats (Unicode CLDR (m))."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    column = lines[0].split(",").index("solar_down")
+    rows = [lines[0]]
+    for line in lines[1:]:
+        cells = line.split(",")
+        if cells[column] != "-9999" and float(cells[column]) * 1.2 >= 1000:
+            cells[column] = f"{float(cells[column]) * 1.2:,.1f}".replace(",", separator)
+        rows.append(",".join(cells))
+    config = _with_records(example, tmp_path, "grouped.csv", "\n".join(rows) + "\n")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "'solar_down' (rg)" in line and "thousands separator" in line
+    assert "[input] missing" not in line
+
+
 def test_zero_bytes_of_a_cut_write_are_named_in_one_short_line(example, tmp_path, capsys):
     """A block of NUL bytes (a logger's write cut by a power failure) before a record: one
     line naming the file line, not the stamp repr with 200 '\\x00' escapes (~1 kB)."""
@@ -321,3 +344,189 @@ def test_home_folder_tilde_in_the_input_path_is_named(example, tmp_path, capsys)
         error = _one_error(capsys)
         assert f'[input] path = "{path}"' in error and "'~' is not expanded" in error
         assert str(Path(path).expanduser()) in error
+
+
+def test_column_named_with_a_look_alike_character_says_so(example, tmp_path, capsys):
+    """A mapped name typed with the Greek mu where the header has the micro sign is named
+    with the code point that differs, not only "did you mean" a name shown alike.
+    Outside fact: U+03BC is GREEK SMALL LETTER MU, U+00B5 MICRO SIGN (Unicode)."""
+    records = example.with_suffix(".csv").read_text().replace(
+        "co2_exchange", "fc_\u00b5mol", 1)
+    config = _with_records(example, tmp_path, "tower.csv", records)
+    config.write_text(config.read_text(encoding="utf-8").replace(
+        'nee = "co2_exchange"', 'nee = "fc_\u03bcmol"'), encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "[input.columns] nee" in line and "U+03BC GREEK SMALL LETTER MU" in line
+    assert "U+00B5 MICRO SIGN" in line
+    suggested = line.split("in TOML write ")[1].split(")")[0]     # "fc_\u00B5mol"
+    config.write_text(config.read_text(encoding="utf-8").replace(
+        'nee = "fc_\u03bcmol"', f"nee = {suggested}"), encoding="utf-8")
+    assert main(["check", str(config)]) in (0, 1)
+
+
+@pytest.mark.parametrize("restart", ["title_header_units", "files_with_bom_joined"])
+def test_header_repeated_mid_file_is_named_at_its_line(example, tmp_path, capsys, restart):
+    """A logger restarting its program writes its title, header and units lines again
+    into the same file; files saved with a byte-order mark (Unicode U+FEFF) and joined end
+    to end repeat the header behind one. Both are named at the repeated header's line
+    (were: the title line called a record cut short; the mark hid the repetition)."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    if restart == "title_header_units":
+        block = ["Tamsworth heath TH-2", lines[0], "-,umol m-2 s-1,W m-2,C,kPa,m s-1,C,%,-"]
+        text = "\n".join(block + lines[1:5000] + block + lines[5000:]) + "\n"
+        repeated = 5004
+        extra = "rows_before_header = 1\nrows_after_header = 1\n"
+    else:
+        text = "\ufeff" + "\n".join(lines[:5000]) + "\n\ufeff" + "\n".join(lines) + "\n"
+        repeated, extra = 5001, ""
+    data = tmp_path / "restart.csv"
+    data.write_bytes(text.encode("utf-8"))
+    config = tmp_path / "restart.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', f'path = "restart.csv"\n{extra}'), encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert f"line {repeated} repeats the header line" in line and "restart.csv" in line
+
+
+def test_grouped_integers_in_a_decimal_point_column_are_named(example, tmp_path, capsys):
+    """'1,034' (no decimals, quoted as csv writers quote it) in a column written with
+    decimal points elsewhere is digit grouping: named as such, where the decimal-comma
+    hint would have led to reading 1034 W m-2 as 1.034."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    column = lines[0].split(",").index("solar_down")
+    rows = [lines[0]]
+    for line in lines[1:]:
+        cells = line.split(",")
+        if cells[column] != "-9999" and float(cells[column]) * 1.2 >= 1000:
+            cells[column] = f'"{float(cells[column]) * 1.2:,.0f}"'
+        rows.append(",".join(cells))
+    config = _with_records(example, tmp_path, "grouped.csv", "\n".join(rows) + "\n")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "'solar_down' (rg)" in line and "',' as thousands separator" in line
+    assert "decimal = \",\"" not in line
+
+
+def test_typographic_minus_sign_reads_as_minus(example, tmp_path):
+    """NEE and air temperature written with the minus sign U+2212 (a word processor's or a
+    report's export) read as the same numbers as with the hyphen-minus (Unicode: U+2212
+    MINUS SIGN)."""
+    from fluxpart.io import read_site_config
+
+    text = example.with_suffix(".csv").read_text()
+    lines = text.splitlines()
+    typographic = [lines[0]] + [",".join(cell if cell == "-9999" else cell.replace("-", "\u2212")
+                                         for cell in line.split(",")) for line in lines[1:]]
+    plain = read_site_config(example).read()[0]
+    config = _with_records(example, tmp_path, "minus.csv", "\n".join(typographic) + "\n")
+    frame = read_site_config(config).read()[0]
+    assert "\u2212" in "\n".join(typographic)
+    pd.testing.assert_frame_equal(frame, plain)
+
+
+def test_single_space_delimiter_on_aligned_columns_names_whitespace(example, tmp_path, capsys):
+    """Columns aligned with runs of spaces read with delimiter = " " (every space a field
+    separator): the fix, delimiter = "whitespace", is named (was: a line with more
+    fields than the header, "a delimiter inside a value?")."""
+    rows = [line.split(",") for line in example.with_suffix(".csv").read_text().splitlines()]
+    aligned = "\n".join("".join(cell.rjust(20) for cell in row) for row in rows) + "\n"
+    config = _with_records(example, tmp_path, "aligned.txt", aligned)
+    text = config.read_text(encoding="utf-8")
+    config.write_text(text.replace('path = "aligned.txt"', 'path = "aligned.txt"\ndelimiter = " "'),
+                      encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    assert 'delimiter = "whitespace"' in _one_error(capsys)
+    config.write_text(text.replace('path = "aligned.txt"',
+                                   'path = "aligned.txt"\ndelimiter = "whitespace"'),
+                      encoding="utf-8")
+    assert main(["check", str(config)]) in (0, 1)
+
+
+def test_byte_order_mark_decides_over_a_declared_encoding(example, tmp_path):
+    """Monthly files of a logger declared latin-1 (a degree sign in the units line), one
+    of them saved by another tool as UTF-8 with a byte-order mark: its mark decides, so
+    its header is not read as 'ï»¿stamp_end' (the mark's bytes EF BB BF in Latin-1).
+    Outside facts: Python's codecs.BOM_UTF8 and the Latin-1 code of the degree sign, 0xB0."""
+    from fluxpart.io import read_site_config
+
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    units = ",".join(["-", "umol m-2 s-1", "W m-2", "°C", "kPa", "m s-1", "°C", "%", "-"])
+    first = "\n".join([lines[0], units] + lines[1:9000]) + "\n"
+    second = "\n".join([lines[0], units] + lines[9000:]) + "\n"
+    (tmp_path / "th_1.csv").write_bytes(first.encode("latin-1"))
+    (tmp_path / "th_2.csv").write_bytes(codecs.BOM_UTF8 + second.encode("utf-8"))
+    assert "°C".encode("latin-1")[0] == 0xB0
+    config = tmp_path / "months.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"',
+        'path = "th_*.csv"\nencoding = "latin-1"\nrows_after_header = 1'), encoding="utf-8")
+    frame = read_site_config(config).read()[0]
+    pd.testing.assert_frame_equal(frame, read_site_config(example).read()[0])
+
+
+def test_layout_hint_for_one_of_several_files_says_the_setting_reads_them_all(example,
+                                                                              tmp_path,
+                                                                              capsys):
+    """A logger program changed its delimiter mid-year: the second file's hint (set
+    delimiter = ";") would misread the first; the error says one setting reads every file
+    and names the file already read with it."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    (tmp_path / "th_1.csv").write_text("\n".join(lines[:9000]) + "\n")
+    (tmp_path / "th_2.csv").write_text(
+        "\n".join(line.replace(",", ";") for line in [lines[0]] + lines[9000:]) + "\n")
+    config = tmp_path / "two.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', 'path = "th_*.csv"'), encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "th_2.csv" in line and 'delimiter = ";"' in line
+    assert "th_1.csv' was read with the present delimiter" in line
+
+
+def test_quote_in_a_skipped_title_or_units_line_is_not_read_on(example, tmp_path):
+    """A units line whose last unit is the inch mark alone (", a snow depth column) lies in
+    the rows the config skips: the records after it read as without it (the parser had
+    read on from that opening quote to the end of the file: 'a header but no records')."""
+    from fluxpart.io import read_site_config
+
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    title = "Tamsworth heath TH-2, north mast"
+    units = '-,umol m-2 s-1,W m-2,C,kPa,m s-1,C,%,-,"'
+    config = _with_records(example, tmp_path, "quoted.csv", "\n".join(
+        [title, lines[0] + ",snow"] + [units] + [line + ",0" for line in lines[1:]]) + "\n")
+    config.write_text(config.read_text(encoding="utf-8").replace(
+        'path = "quoted.csv"', 'path = "quoted.csv"\nrows_before_header = 1\n'
+        'rows_after_header = 1'), encoding="utf-8")
+    frame = read_site_config(config).read()[0]
+    pd.testing.assert_frame_equal(frame, read_site_config(example).read()[0])
+
+
+def test_time_column_without_a_name_is_named_as_such(example, tmp_path, capsys):
+    """A table saved with its row index (the stamps) writes an empty first header cell:
+    the error says that column has no name, instead of listing the parser's 'Unnamed: 0'
+    alone."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    header = "," + lines[0].split(",", 1)[1]
+    config = _with_records(example, tmp_path, "indexed.csv", "\n".join([header] + lines[1:]))
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "time_column" in line and "column 1 has no name in the header" in line
+
+
+def test_record_skipped_as_a_units_line_is_refused(example, tmp_path, capsys):
+    """Monthly files with a units line under the header, one of them without it: with
+    rows_after_header = 1 its first record was skipped as the units line, unnoticed (one
+    record of the year lost, check without a problem). Now named at its line."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    units = "-,umol m-2 s-1,W m-2,C,kPa,m s-1,C,%,-"
+    (tmp_path / "th_1.csv").write_text("\n".join([lines[0], units] + lines[1:9000]) + "\n")
+    (tmp_path / "th_2.csv").write_text("\n".join([lines[0]] + lines[9000:]) + "\n")
+    config = tmp_path / "months.toml"
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', 'path = "th_*.csv"\nrows_after_header = 1'),
+        encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "th_2.csv': line 2 (" in line and "rows_after_header = 1, is a record" in line

@@ -301,3 +301,38 @@ def test_summer_time_abbreviation_under_percent_capital_z_is_named():
     winter = parse_stamps(pd.Series(text[:1]), "%Y-%m-%d %H:%M %Z", time_columns=("stamp",),
                           source="t.csv", lines=np.arange(2, 3), utc_offset=1.0)
     assert list(winter.stamps) == [datetime(2021, 3, 28, 1, 30)]
+
+
+def test_off_grid_warning_names_time_marks_only_where_they_explain_the_offset():
+    """Interval starts half an interval off the grid are stamps of another place in the
+    interval (time_marks); starts one minute off (end stamps written at 00:29, 00:59) are
+    not, and the warning says so instead of sending the user to time_marks. Outside fact:
+    the clock arithmetic of Python's ``datetime``."""
+    from fluxpart.timestamps import clock_alignment_warning
+
+    on_grid = [datetime(2021, 6, 1) + timedelta(minutes=30 * k) for k in range(96)]
+    half = pd.DatetimeIndex([t + timedelta(minutes=15) for t in on_grid])
+    minute = pd.DatetimeIndex([t - timedelta(minutes=1) for t in on_grid])
+    assert clock_alignment_warning(pd.DatetimeIndex(on_grid), 30, "end") is None
+    assert 'time_marks = "end"' in clock_alignment_warning(half, 30, "end")
+    text = clock_alignment_warning(minute, 30, "end")
+    assert "minute 59 of the hour" in text and "time_marks" not in text
+    assert "Align the stamps" in text and "(96 of 96 records)" in text
+
+
+def test_stamps_with_decimal_fractions_are_named_for_what_they_are():
+    """Year, day and hhmm saved from a table of floats ('2021.0 1.0 30.0') and a decimal
+    day of year ('2021 1.02083' = 00:30 of 1 January, 30/1440 of a day) are refused with
+    what they are, judged on every failing stamp (the first decimal day, 1.00000, is
+    whole). Outside fact: the calendar of Python's ``datetime``."""
+    starts = [datetime(2021, 1, 1) + timedelta(minutes=30 * k) for k in range(96)]
+    floats = [f"{float(t.year)} {float(t.timetuple().tm_yday)} {float(t.hour * 100 + t.minute)}"
+              for t in starts]
+    with pytest.raises(TimestampError, match=r"'2021\.0 1\.0 0\.0'.*whole numbers written with "
+                                             r"a decimal fraction.*as integers"):
+        _parse(floats, "%Y %j %H%M")
+    decimal_days = [f"{t.year} {t.timetuple().tm_yday + (t.hour * 60 + t.minute) / 1440:.5f}"
+                    for t in starts]
+    assert decimal_days[1] == "2021 1.02083"
+    with pytest.raises(TimestampError, match=r"stamps hold decimal fractions \(a decimal day"):
+        _parse(decimal_days, "%Y %j", columns=("Year", "DOY"))

@@ -200,3 +200,44 @@ def test_clock_hours_off_is_not_called_an_rg_unit():
                                         _potential(frame.index, wrong, minutes), (),
                                         frame.index)
     assert "rg" not in refusals and not any("'rg' (rg)" in w for w in warnings), warnings
+
+
+def test_unit_typed_with_look_alike_characters_reads_as_the_unit(tmp_path):
+    """A unit copied with the Greek mu (U+03BC) for the micro sign (U+00B5), or with
+    superscripts ("W m⁻²"), names the same unit. Outside facts: the Unicode code
+    points (U+00B5 MICRO SIGN, U+03BC GREEK SMALL LETTER MU, U+207B SUPERSCRIPT MINUS,
+    U+00B2 SUPERSCRIPT TWO, U+00BA MASCULINE ORDINAL INDICATOR typed for the degree sign
+    on Spanish keyboards) and their compatibility mappings (Unicode Standard Annex 15,
+    NFKC, as Python's ``unicodedata`` implements it)."""
+    import unicodedata
+
+    import pandas as pd
+
+    from fluxpart.io import read_table
+    from fluxpart.variables import unit_spelling
+
+    assert unicodedata.name("\u03bc") == "GREEK SMALL LETTER MU"
+    assert unit_spelling("nee", "\u03bcmol m-2 s-1") == "\u00b5mol m-2 s-1"
+    assert unit_spelling("rg", "W m\u207b\u00b2") == "W m-2"
+    assert unit_spelling("ppfd", "\u03bcmol m\u207b\u00b2 s\u207b\u00b9") == "\u00b5mol m-2 s-1"
+    assert unit_spelling("vpd", "kpa") == "kpa"      # letter case is not a look-alike
+    assert unicodedata.name("\u00ba") == "MASCULINE ORDINAL INDICATOR"
+    for typed in ("\u00baC", "\u02daC", "\u2103"):     # ºC, ˚C, ℃ (DEGREE CELSIUS)
+        assert unit_spelling("tair", typed) == "\u00b0C"
+    assert unit_spelling("tsoil", "\u00baF") == "\u00b0F"
+    starts = pd.date_range("2021-06-01", periods=96, freq="30min")
+    sun = np.clip(np.sin((starts.hour + starts.minute / 60 - 6) / 12 * np.pi), 0, None)
+    rng = np.random.default_rng(2)
+    pd.DataFrame({"stamp": starts.strftime("%Y-%m-%d %H:%M"),
+                  "fc": np.round(3 - 15 * sun + rng.normal(0, 1.5, 96), 3),
+                  "sw": np.round(800 * sun, 1), "ta": np.round(12 + 8 * sun, 2),
+                  "vpd": np.round(0.2 + 1.4 * sun, 3), "us": np.round(rng.uniform(0.1, 0.6, 96), 3),
+                  }).to_csv(tmp_path / "t.csv", index=False)
+    options = {"columns": {"nee": "fc", "rg": "sw", "tair": "ta", "vpd": "vpd", "ustar": "us"},
+               "time_column": "stamp", "time_format": "%Y-%m-%d %H:%M"}
+    plain, _ = read_table(tmp_path / "t.csv", units={"vpd": "kPa"}, **options)
+    typed, report = read_table(tmp_path / "t.csv", units={
+        "vpd": "kPa", "nee": "\u03bcmol m\u207b\u00b2 s\u207b\u00b9", "rg": "W m\u207b\u00b2"},
+        **options)
+    pd.testing.assert_frame_equal(plain, typed)
+    assert report.units["nee"] == "\u00b5mol m-2 s-1"
