@@ -504,7 +504,7 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
 
 
 def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes: int):
-    """Soil temperature in °F read as °C, where few values leave the plausible range.
+    """Soil temperature in °F or K read as °C, where few values leave the plausible range.
 
     Near the surface the soil follows the air: over the same records their medians differ
     by a few K. A soil of a cool site in °F (32-59) passes the 60 °C range limit and would
@@ -519,11 +519,15 @@ def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes
     soil, air = float(np.median(tsoil[both])), float(np.median(tair[both]))
     if soil - air <= _SOIL_ABOVE_AIR or soil <= _SOIL_FAHRENHEIT_MEDIAN:
         return None
+    # the unit named is the one that brings the soil's median nearest the air's: kelvin
+    # (soil - 273.15) puts a soil read as 280 °C at 7 °C, °F would put it at 138 °C
+    candidates = {"°F": (soil - 32.0) * 5.0 / 9.0, "K": soil - 273.15}
+    unit = min(candidates, key=lambda name: abs(candidates[name] - air))
     return (f"column {columns['tsoil']!r} (tsoil, read as °C): its median is {soil:.1f} °C, "
             f"{soil - air:.1f} K above the air temperature's ({air:.1f} °C) over the same "
             "records, where a soil near the surface stays within a few K of the air; the "
-            f"values look like °F ({(soil - 32.0) * 5.0 / 9.0:.1f} °C): set [input.units] "
-            "tsoil = \"°F\" (or list tsoil in [input] accept_units)")
+            f"values look like {unit} ({candidates[unit]:.1f} °C): set [input.units] "
+            f"tsoil = \"{unit}\" (or list tsoil in [input] accept_units)")
 
 
 def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: int,

@@ -200,3 +200,21 @@ def test_clock_hours_off_is_not_called_an_rg_unit():
                                         _potential(frame.index, wrong, minutes), (),
                                         frame.index)
     assert "rg" not in refusals and not any("'rg' (rg)" in w for w in warnings), warnings
+
+
+@pytest.mark.parametrize("seed", [0, 4])
+def test_kelvin_soil_temperature_is_named_as_kelvin(seed):
+    """Soil temperature in K read as °C was refused with the hint "looks like °F" (280 °C
+    read as °F is 138 °C, no soil), sending the user to the wrong setting (review, round
+    six). The hint names the unit that brings the soil's median nearest the air's.
+    Facts: K = °C + 273.15 and °F = 9/5 °C + 32 (NIST SP 811 (m))."""
+    from fluxpart import scenarios
+
+    frame = scenarios.generate(seed).frame
+    minutes = int((frame.index[1] - frame.index[0]).total_seconds() // 60)
+    converted = {n: frame[n].to_numpy(float) for n in ("nee", "rg", "tair", "vpd", "tsoil")}
+    columns = {n: n for n in converted}
+    kelvin = dict(converted, tsoil=converted["tsoil"] + 273.15)
+    refusals, _ = mixup_messages(kelvin, {}, columns, minutes)
+    assert list(refusals) == ["tsoil"] and 'tsoil = "K"' in refusals["tsoil"]
+    assert "°F" not in refusals["tsoil"]
