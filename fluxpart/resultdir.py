@@ -438,7 +438,8 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     -------
     str or None
         The reason, to follow the folder's name in a message: it is a file, or a
-        folder holding other files and no `marker` (which replacing would delete), or
+        folder holding other files and no `marker` (which replacing would delete), a
+        write-protected one (whose old content could not be removed after the swap), or
         another site's result; None for a new or empty folder or one of this kind.
     """
     directory = Path(directory)
@@ -451,7 +452,25 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     if not (directory / marker).is_file():
         return (f"is a folder that holds other files and no {marker}; it is not {kind}, and "
                 "writing would replace it whole")
+    protected = _write_protected(directory)
+    if protected is not None:
+        return (f"is write-protected ({str(protected)!r} cannot be changed: kept read-only on "
+                "purpose?); the new one would be swapped in while the old one could not be "
+                "removed and would stay hidden beside it: make it writable (chmod -R u+w)")
     return other_site_reason(directory, site_name)
+
+
+def _write_protected(directory: Path) -> Path | None:
+    """The first folder in the tree of `directory` (itself included) whose entries this
+    process may not remove (no write or search permission), or None.
+
+    Removing a file takes write permission on the folder that lists it, not on the file
+    (POSIX ``unlink``), so only folders are asked.
+    """
+    for folder, _, _ in os.walk(directory):
+        if not os.access(folder, os.W_OK | os.X_OK):
+            return Path(folder)
+    return None
 
 
 # --------------------------------------------------------------------------- writing
