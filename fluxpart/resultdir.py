@@ -439,7 +439,8 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     str or None
         The reason, to follow the folder's name in a message: it is a file, or a
         folder holding other files and no `marker` (which replacing would delete), a
-        write-protected one (whose old content could not be removed after the swap), or
+        result folder holding entries its manifest does not list (its input file
+        moved into it: deleted with the old result), a write-protected one (whose old content could not be removed after the swap), or
         another site's result; None for a new or empty folder or one of this kind.
     """
     directory = Path(directory)
@@ -452,12 +453,38 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     if not (directory / marker).is_file():
         return (f"is a folder that holds other files and no {marker}; it is not {kind}, and "
                 "writing would replace it whole")
+    unlisted = _unlisted_entries(directory) if marker == MANIFEST_FILE else []
+    if unlisted:
+        shown = ", ".join(repr(name) for name in unlisted[:5]) + (
+            f" and {len(unlisted) - 5} more" if len(unlisted) > 5 else "")
+        return (f"holds {shown}, which its manifest does not list (an input file, a site "
+                "config or notes put into the result folder?), and writing would replace the "
+                "folder whole and delete them: move them out of it")
     protected = _write_protected(directory)
     if protected is not None:
         return (f"is write-protected ({str(protected)!r} cannot be changed: kept read-only on "
                 "purpose?); the new one would be swapped in while the old one could not be "
                 "removed and would stay hidden beside it: make it writable (chmod -R u+w)")
     return other_site_reason(directory, site_name)
+
+
+def _unlisted_entries(directory: Path) -> list[str]:
+    """Entries of the result folder `directory` its manifest does not list, sorted.
+
+    Listed: the manifest, its tables, the run log, the ``report/`` folder and what an
+    interrupted report left (``.report.*``). Hidden entries other than those (a file
+    manager's ``.DS_Store``) and a manifest that cannot be read count as listed: a
+    damaged manifest does not protect its folder (as :func:`recorded_site_name`).
+    """
+    try:
+        manifest = json.loads((directory / MANIFEST_FILE).read_text(encoding="utf-8"))
+        tables = manifest.get("tables") if isinstance(manifest, dict) else None
+        listed = {entry.get("file") for entry in tables.values() if isinstance(entry, dict)}
+        names = sorted(path.name for path in directory.iterdir())
+    except (OSError, UnicodeDecodeError, ValueError, AttributeError):
+        return []
+    listed |= {MANIFEST_FILE, RUN_LOG, REPORT_FOLDER}
+    return [name for name in names if name not in listed and not name.startswith(".")]
 
 
 def _write_protected(directory: Path) -> Path | None:

@@ -539,3 +539,23 @@ def test_write_protected_result_is_refused_not_left_hidden(short_result, tmp_pat
     monkeypatch.undo()
     short_result.write(out)                         # writable again: replaced, nothing left
     assert _leftovers(out) == []
+
+
+def test_result_folder_holding_unlisted_files_is_not_replaced(short_result, tmp_path):
+    """An input file (or the site config, or notes) moved into an earlier result folder:
+    the next run replaced the folder whole and deleted the input without a word (review,
+    round six). Refused, naming the file, and nothing is changed; hidden entries (a file
+    manager's) do not count."""
+    out = tmp_path / "out"
+    short_result.write(out)
+    before = read_folder(out)[0]["seal"]
+    (out / "tower.csv").write_text("time,nee\n")
+    with pytest.raises(OutputError, match="holds 'tower.csv', which its manifest does not "
+                                          "list.*delete them"):
+        short_result.write(out)
+    assert (out / "tower.csv").read_text() == "time,nee\n"
+    assert _leftovers(out) == []
+    (out / "tower.csv").unlink()
+    assert read_folder(out)[0]["seal"] == before
+    (out / ".DS_Store").write_text("")
+    short_result.write(out)
