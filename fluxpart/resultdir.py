@@ -453,13 +453,13 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     if not (directory / marker).is_file():
         return (f"is a folder that holds other files and no {marker}; it is not {kind}, and "
                 "writing would replace it whole")
-    unlisted = _unlisted_entries(directory) if marker == MANIFEST_FILE else []
+    unlisted = _unlisted_entries(directory, marker)
     if unlisted:
         shown = ", ".join(repr(name) for name in unlisted[:5]) + (
             f" and {len(unlisted) - 5} more" if len(unlisted) > 5 else "")
-        return (f"holds {shown}, which its manifest does not list (an input file, a site "
-                "config or notes put into the result folder?), and writing would replace the "
-                "folder whole and delete them: move them out of it")
+        return (f"holds {shown}, which fluxpart did not write there (an input file, a site "
+                f"config or notes put into {kind}?), and writing would replace the folder "
+                "whole and delete them: move them out of it")
     protected = _write_protected(directory)
     if protected is not None:
         return (f"is write-protected ({str(protected)!r} cannot be changed: kept read-only on "
@@ -468,22 +468,27 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     return other_site_reason(directory, site_name)
 
 
-def _unlisted_entries(directory: Path) -> list[str]:
-    """Entries of the result folder `directory` its manifest does not list, sorted.
+def _unlisted_entries(directory: Path, marker: str) -> list[str]:
+    """Entries of the folder `directory` that a writer of its kind did not write, sorted.
 
-    Listed: the manifest, its tables, the run log, the ``report/`` folder and what an
-    interrupted report left (``.report.*``). Hidden entries other than those (a file
-    manager's ``.DS_Store``) and a manifest that cannot be read count as listed: a
-    damaged manifest does not protect its folder (as :func:`recorded_site_name`).
+    A result folder (`marker` ``manifest.json``): what its manifest does not list (it
+    lists its tables, the run log and the ``report/`` folder). A report folder: what is
+    neither `marker` nor a ``.png`` figure. Hidden entries (a file manager's
+    ``.DS_Store``, an interrupted writer's staging) are not counted, nor is anything
+    where the manifest cannot be read: a damaged manifest does not protect its folder
+    (as :func:`recorded_site_name`).
     """
     try:
-        manifest = json.loads((directory / MANIFEST_FILE).read_text(encoding="utf-8"))
-        tables = manifest.get("tables") if isinstance(manifest, dict) else None
-        listed = {entry.get("file") for entry in tables.values() if isinstance(entry, dict)}
         names = sorted(path.name for path in directory.iterdir())
+        if marker == MANIFEST_FILE:
+            manifest = json.loads((directory / MANIFEST_FILE).read_text(encoding="utf-8"))
+            tables = manifest.get("tables") if isinstance(manifest, dict) else None
+            listed = {entry.get("file") for entry in tables.values() if isinstance(entry, dict)}
+            listed |= {MANIFEST_FILE, RUN_LOG, REPORT_FOLDER}
+        else:
+            listed = {marker} | {name for name in names if name.endswith(".png")}
     except (OSError, UnicodeDecodeError, ValueError, AttributeError):
         return []
-    listed |= {MANIFEST_FILE, RUN_LOG, REPORT_FOLDER}
     return [name for name in names if name not in listed and not name.startswith(".")]
 
 

@@ -550,8 +550,8 @@ def test_result_folder_holding_unlisted_files_is_not_replaced(short_result, tmp_
     short_result.write(out)
     before = read_folder(out)[0]["seal"]
     (out / "tower.csv").write_text("time,nee\n")
-    with pytest.raises(OutputError, match="holds 'tower.csv', which its manifest does not "
-                                          "list.*delete them"):
+    with pytest.raises(OutputError, match="holds 'tower.csv', which fluxpart did not write "
+                                          "there.*delete them"):
         short_result.write(out)
     assert (out / "tower.csv").read_text() == "time,nee\n"
     assert _leftovers(out) == []
