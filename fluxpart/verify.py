@@ -625,6 +625,51 @@ def _same_but_input_path(path: Path, copy: Path | None) -> bool:
     return documents[0] == documents[1]
 
 
+def _config_changes(path: Path, copy: Path | None, limit: int = 5) -> str:
+    """The settings in which the site config at `path` differs from the recorded `copy`.
+
+    Returns text such as ``"; changed since the run: [processing] seed 0 -> 1"``
+    (at most `limit` keys named, the rest counted), or "" where either file cannot
+    be read as TOML or they hold the same settings.
+    """
+    import tomllib
+
+    if copy is None:
+        return ""
+    try:
+        now, then = (tomllib.loads(p.read_text(encoding="utf-8-sig")) for p in (path, copy))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        return ""
+
+    def flat(document, prefix=""):
+        out = {}
+        for key, value in document.items():
+            if isinstance(value, dict):
+                out.update(flat(value, f"{prefix}{key}."))
+            else:
+                out[f"{prefix}{key}"] = value
+        return out
+
+    now, then = flat(now), flat(then)
+    missing = object()
+    changed = [key for key in sorted(set(now) | set(then))
+               if now.get(key, missing) != then.get(key, missing)]
+    if not changed:
+        return ""
+
+    def shown(value):
+        return "(absent)" if value is missing else repr(value)
+
+    def name(key):
+        section, _, leaf = key.rpartition(".")
+        return f"[{section}] {leaf}" if section else leaf
+
+    parts = [f"{name(key)} {shown(then.get(key, missing))} -> {shown(now.get(key, missing))}"
+             for key in changed[:limit]]
+    more = f" and {len(changed) - limit} more" if len(changed) > limit else ""
+    return "; changed since the run: " + ", ".join(parts) + more
+
+
 def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: list):
     """Return (site config for the rerun, site config that locates the input, difference).
 
@@ -660,8 +705,8 @@ def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: l
                      "input")
         return copy, path, None
     if copy is not None:
-        where = (f"the file at {str(path)!r} is another version" if path is not None
-                 and path.is_file() else f"it is not at {str(path)!r}")
+        where = (f"the file at {str(path)!r} is another version{_config_changes(path, copy)}"
+                 if path is not None and path.is_file() else f"it is not at {str(path)!r}")
         notes.append(f"site config: {where}; used the copy of its text recorded in the "
                      "manifest (SHA-256 checked)")
         return copy, None, None

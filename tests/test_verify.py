@@ -535,3 +535,17 @@ def test_a_killed_verify_leaves_no_scratch_for_long(tmp_path):
     other.mkdir()
     assert remove_dead_scratch(tmp_path) == [dead.name]
     assert not dead.exists() and running.exists() and other.exists()
+
+
+def test_site_config_edited_after_the_run_names_the_changed_settings(copy, capsys):
+    """The site config beside the result edited after the run (a setting changed, one
+    added): verify reruns from the recorded copy, as before, and now says which settings
+    differ, with both values, so the auditor knows the file at hand is not what ran."""
+    config = copy / "site.toml"
+    text = config.read_text()
+    assert "[processing]" in text
+    config.write_text(text + "despike_z = 9.0\n")
+    assert main(["verify", str(copy / "out")]) == 0
+    out = capsys.readouterr().out
+    assert "is another version; changed since the run: [processing] despike_z (absent) -> 9.0" \
+        in out
