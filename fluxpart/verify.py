@@ -156,7 +156,8 @@ class Difference:
                     "computed from, so nothing was recomputed")
         if self.kind == "hash":
             return (f"{self.table}: file SHA-256 {self.recomputed} is not the {self.stored} "
-                    "recorded in manifest.json (the file was changed after it was written)")
+                    f"recorded in manifest.json ({self.column or 'the file'} was changed after "
+                    "it was written)")
         if self.kind in ("seal", "extra", "format"):
             return f"{self.table}: {self.column} {self.stored}"
         if self.kind == "file":
@@ -240,6 +241,12 @@ class VerifyReport:
         """Largest relative difference among the rounding differences (0 when none)."""
         values = [d.relative for d in self.rounding if np.isfinite(d.relative)]
         return max(values) if values else 0.0
+
+    @property
+    def changed_files(self) -> list[str]:
+        """Files of the folder whose bytes differ from the recorded SHA-256 (named even in
+        the one-line verdict of ``--quiet``)."""
+        return [d.column for d in self.differences if d.kind == "hash" and d.column]
 
     @property
     def exit_code(self) -> int:
@@ -938,7 +945,8 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                       if isinstance(e, dict) and e.get("file") == problem.file), "folder")
         if kind == "hash":
             entry = manifest["tables"][table]
-            differences.append(Difference(table, "hash", stored=str(entry.get("sha256")),
+            differences.append(Difference(table, "hash", column=problem.file,
+                                          stored=str(entry.get("sha256")),
                                           recomputed=file_sha256(directory / problem.file)))
         elif kind == "file":
             differences.append(Difference(table, "file", stored=problem.file,
@@ -1063,7 +1071,10 @@ def command_verify(args) -> int:
     # --quiet: the verdict and the caution, without the per-column detail
     if getattr(args, "quiet", False):
         identity = [line for line in lines if line.startswith("result: ")]
-        lines = [lines[0].rstrip(":"), *identity, lines[-1]]
+        changed = report.changed_files
+        headline = lines[0].rstrip(":") + (
+            f" ({', '.join(changed)} changed after it was written)" if changed else "")
+        lines = [headline, *identity, lines[-1]]
     print("\n".join(lines))
     return report.exit_code
 
