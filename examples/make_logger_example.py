@@ -63,7 +63,9 @@ def write_logger_example(directory, seed=3, frame=None) -> Path:
     times = np.where(midnight, "24:00", civil.strftime("%H:%M"))
 
     hour = frame.index.hour + frame.index.minute / 60
-    storage = np.round(1.5 * np.sin((hour - 3) / 24 * 2 * np.pi), 3)  # sums to 0 per day
+    # CO2 builds up below the sensor through the night (storage > 0, largest at 21 h) and
+    # is flushed in the morning (< 0, largest at 9 h); sums to 0 per day
+    storage = np.round(1.5 * np.sin((hour - 15) / 24 * 2 * np.pi), 3)
     turbulent = frame["nee"].to_numpy() - storage
     good = frame["nee_flag"].to_numpy() == 0
     quality = np.where(good, np.where(rng.random(n) < 0.1, 1, 0), 2)

@@ -63,6 +63,7 @@ __all__ = [
     "MIN_WINDOWS",
     "check_clock",
     "check_hemisphere",
+    "check_latitude",
     "monthly_shifts",
     "shift_threshold_minutes",
 ]
@@ -102,6 +103,16 @@ MIN_HEMISPHERE_CONTRAST = 0.12
 #: matches within minutes, while a flipped latitude's differs by its seasonal range
 #: (about 1.6 h at 12°, FAO-56 eq. 34).
 MIN_DAYLENGTH_SWING = 20.0
+#: Smallest distance between the configured latitude and the one whose day lengths
+#: fit the Rg envelope best for the latitude to be called wrong [degrees]; 10°, our
+#: choice: a tower's latitude is known to a small fraction of a degree, so an error this
+#: large is another site's file or a mistyped value, and at mid-latitudes it changes the
+#: seasonal range of day length by more than an hour (FAO-56 eq. 34), well above the
+#: :data:`MIN_DAYLENGTH_SWING` the Rg edges resolve.
+MIN_LATITUDE_ERROR = 10.0
+#: Fewest sunlit months with a sunrise and a sunset for the latitude to be judged [1];
+#: our choice: a third of a year shows the seasonal course of day length.
+MIN_LATITUDE_MONTHS = 4
 _DAYLIGHT_SAVING_STEP = 60.0      # minutes: the daylight-saving change of the clock
 
 
@@ -112,8 +123,9 @@ class ClockVerdict:
     Attributes
     ----------
     status : str
-        ``"consistent"``, ``"shifted"``, ``"daylight_saving"``, ``"hemisphere"``
-        or ``"cannot_judge"``.
+        ``"consistent"``, ``"shifted"``, ``"daylight_saving"``, ``"hemisphere"``,
+        ``"latitude"`` (a latitude of the right sign but far off the one Rg's day
+        lengths give) or ``"cannot_judge"``.
     shift_minutes : float
         Median monthly shift of Rg against the sun [min]; positive when Rg comes
         later than the site's settings predict. NaN when not judged.
@@ -490,6 +502,96 @@ def check_hemisphere(index, rg, latitude, longitude, utc_offset, interval_minute
                           f"(r = {r_configured:.2f})")
 
 
+def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
+                   months: pd.DataFrame | None = None) -> tuple[str, str, float]:
+    """Does the configured latitude give the day lengths measured Rg shows?
+
+    Parameters
+    ----------
+    index, rg, latitude, longitude, utc_offset, interval_minutes
+        As for :func:`monthly_shifts`.
+    months : pandas.DataFrame, optional
+        The output of :func:`monthly_shifts` for the configured latitude, if at hand.
+
+    Returns
+    -------
+    verdict : str
+        ``"consistent"``, ``"mismatch"`` or ``"cannot_judge"``.
+    detail : str
+        One line saying why.
+    best : float
+        The latitude of the configured sign whose day lengths fit best [degrees];
+        NaN where not judged.
+
+    Notes
+    -----
+    Day length does not care for clouds: at the right latitude the width of each
+    used month's Rg envelope at :data:`EDGE_LEVEL` minus that of the potential
+    radiation stays nearly constant through the year (its standard deviation was
+    3-22 min on generated sites from 37° S to 67° N), while at a wrong latitude it
+    swings with the seasons (day length against latitude and season: Allen et al.
+    1998, FAO-56, eq. 34). Latitudes of the configured sign are scanned (5°, then
+    1° around the best); the latitude is a mismatch where the best lies
+    :data:`MIN_LATITUDE_ERROR` or more from the configured one and the swing at the
+    configured latitude exceeds both :data:`MIN_DAYLENGTH_SWING` and twice the swing
+    at the best. A site TOML pointing at another site's file, or a latitude typed
+    wrongly, moves the night mask and the potential radiation the screening compares
+    Rg with. The sign is :func:`check_hemisphere`'s concern.
+
+    References
+    ----------
+    Allen, R. G., Pereira, L. S., Raes, D. & Smith, M. (1998). Crop
+    evapotranspiration. FAO Irrigation and Drainage Paper 56, Rome.
+    """
+    interval = float(interval_minutes)
+    if months is None:
+        months = monthly_shifts(index, rg, latitude, longitude, utc_offset, interval)
+    usable = months[months["used"] & months["sun_sets"]
+                    & np.isfinite(months["daylength_rg"])
+                    & np.isfinite(months["daylength_potential"])]
+    if len(usable) < MIN_LATITUDE_MONTHS:
+        return "cannot_judge", (f"latitude not judged: {len(usable)} month(s) of Rg with a "
+                                f"sunrise and a sunset ({MIN_LATITUDE_MONTHS} needed)"), np.nan
+    index = pd.DatetimeIndex(index)
+    rg_matrix, days = _day_slot_matrix(index, np.asarray(rg, dtype=float), interval)
+    layout = _day_slot_layout(index, interval)
+    present = np.isfinite(rg_matrix)
+    good_day = present.sum(axis=1) >= 0.8 * rg_matrix.shape[1]
+    month_of_day = days.to_period("M").start_time
+    masks = [(month_of_day == start) & good_day for start in usable.index]
+    rg_width = usable["daylength_rg"].to_numpy()
+
+    def swing(candidate: float) -> float:
+        """Standard deviation over the usable months of Rg's minus the sun's width [min]."""
+        matrix = np.full(rg_matrix.shape, np.nan)
+        matrix[layout] = potential_radiation(index, candidate, longitude, utc_offset, interval)
+        widths = np.array([_crossings(np.nanmean(np.where(present[m], matrix[m], np.nan),
+                                                 axis=0), interval, EDGE_LEVEL)[1]
+                           for m in masks])
+        off = rg_width - widths
+        return float(np.std(off)) if np.isfinite(off).sum() >= MIN_LATITUDE_MONTHS \
+            and np.isfinite(off).all() else np.inf
+
+    sign = -1.0 if latitude < 0 else 1.0
+    configured = float(np.std(rg_width - usable["daylength_potential"].to_numpy()))
+    coarse = {c: swing(sign * c) for c in np.arange(0.0, 86.0, 5.0)}
+    centre = min(coarse, key=coarse.get)
+    fine = {c: swing(sign * c) for c in np.arange(max(centre - 4.0, 0.0),
+                                                   min(centre + 4.0, 85.0) + 0.5, 1.0)}
+    scores = {**coarse, **fine}
+    best_abs = min(scores, key=scores.get)
+    best, best_swing = sign * float(best_abs), scores[best_abs]
+    if (abs(best - latitude) >= MIN_LATITUDE_ERROR and configured > MIN_DAYLENGTH_SWING
+            and configured > 2.0 * best_swing):
+        return "mismatch", (
+            f"the day lengths of Rg fit latitude {best:g} (their mismatch with the sun swings "
+            f"{best_swing:.0f} min through the year), not the configured {latitude:g} "
+            f"({configured:.0f} min over {len(usable)} months): check [site] latitude, and "
+            f"that [input] path names this site's file"), best
+    return "consistent", (f"day lengths of Rg consistent with latitude {latitude:g} "
+                          f"(swing {configured:.0f} min)"), best
+
+
 def _unwrapped_shifts(used: pd.DataFrame) -> pd.DataFrame:
     """Monthly shifts (and edge shifts) unwrapped around their circular mean [min].
 
@@ -769,5 +871,11 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
                 "logger clock was off in that period; correct those stamps")
     if status == "consistent" and hemisphere == "mismatch":
         status = "hemisphere"
+    if hemisphere != "mismatch":
+        verdict, detail, _ = check_latitude(index, rg, latitude, longitude, utc_offset,
+                                            interval, months)
+        if verdict == "mismatch":
+            problems.append(f"site geometry: {detail}")
+            status = "latitude" if status == "consistent" else status
     return ClockVerdict(status, median, spread, len(used), suggested, tuple(problems),
                         tuple(notes), hemisphere, months)

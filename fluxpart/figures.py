@@ -1089,6 +1089,7 @@ _CLOCK_WORDS = {
     "shifted": "Rg is SHIFTED against the sun (clock or UTC offset)",
     "daylight_saving": "stamps look like DAYLIGHT-SAVING time in part of the year",
     "hemisphere": "the latitude's SIGN looks wrong",
+    "latitude": "the LATITUDE looks wrong (another site's file?)",
     "cannot_judge": "the check could not judge this record",
 }
 

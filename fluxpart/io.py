@@ -1222,11 +1222,27 @@ def _refuse_or_warn(name: str, message: str, accept_units: tuple, warnings: list
 
 
 def _file_sha256(path: Path) -> str:
+    """SHA-256 of an input file; a missing or unreadable file is an `InputFileError`."""
+    _require_input_file(Path(path))
     digest = hashlib.sha256()
-    with open(path, "rb") as handle:
-        for block in iter(lambda: handle.read(1 << 20), b""):
-            digest.update(block)
+    try:
+        with open(path, "rb") as handle:
+            for block in iter(lambda: handle.read(1 << 20), b""):
+                digest.update(block)
+    except OSError as error:
+        raise InputFileError(f"input file {str(path)!r} cannot be read: {error}") from None
     return digest.hexdigest()
+
+
+def _require_input_file(path: Path) -> None:
+    """Raise `InputFileError` naming ``[input] path`` unless `path` is an existing file."""
+    if not path.exists():
+        hint = ("; write the path with forward slashes ('/'), which work on every system: "
+                "a backslash is part of the file name outside Windows" if "\\" in str(path)
+                else _case_hint(path))
+        raise InputFileError(f"[input] path: input file {str(path)!r} does not exist{hint}")
+    if not path.is_file():
+        raise InputFileError(f"[input] path: {str(path)!r} is not a file")
 
 
 def _case_hint(path: Path) -> str:
@@ -1246,13 +1262,7 @@ def _case_hint(path: Path) -> str:
 
 def _decode(path: Path, encoding) -> tuple[str, str]:
     """Return the file's text and the encoding used (detected if `encoding` is None)."""
-    if not path.exists():
-        hint = ("; write the path with forward slashes ('/'), which work on every system: "
-                "a backslash is part of the file name outside Windows" if "\\" in str(path)
-                else _case_hint(path))
-        raise InputFileError(f"[input] path: input file {str(path)!r} does not exist{hint}")
-    if not path.is_file():
-        raise InputFileError(f"[input] path: {str(path)!r} is not a file")
+    _require_input_file(path)
     try:
         data = path.read_bytes()
     except OSError as error:

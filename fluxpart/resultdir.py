@@ -438,7 +438,9 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     -------
     str or None
         The reason, to follow the folder's name in a message: it is a file, or a
-        folder holding other files and no `marker` (which replacing would delete), or
+        folder holding other files and no `marker` (which replacing would delete), a
+        result folder holding entries its manifest does not list (its input file
+        moved into it: deleted with the old result), a write-protected one (whose old content could not be removed after the swap), or
         another site's result; None for a new or empty folder or one of this kind.
     """
     directory = Path(directory)
@@ -451,7 +453,56 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     if not (directory / marker).is_file():
         return (f"is a folder that holds other files and no {marker}; it is not {kind}, and "
                 "writing would replace it whole")
+    unlisted = _unlisted_entries(directory, marker)
+    if unlisted:
+        shown = ", ".join(repr(name) for name in unlisted[:5]) + (
+            f" and {len(unlisted) - 5} more" if len(unlisted) > 5 else "")
+        return (f"holds {shown}, which fluxpart did not write there (an input file, a site "
+                f"config or notes put into {kind}?), and writing would replace the folder "
+                "whole and delete them: move them out of it")
+    protected = _write_protected(directory)
+    if protected is not None:
+        return (f"is write-protected ({str(protected)!r} cannot be changed: kept read-only on "
+                "purpose?); the new one would be swapped in while the old one could not be "
+                "removed and would stay hidden beside it: make it writable (chmod -R u+w)")
     return other_site_reason(directory, site_name)
+
+
+def _unlisted_entries(directory: Path, marker: str) -> list[str]:
+    """Entries of the folder `directory` that a writer of its kind did not write, sorted.
+
+    A result folder (`marker` ``manifest.json``): what its manifest does not list (it
+    lists its tables, the run log and the ``report/`` folder). A report folder: what is
+    neither `marker` nor a ``.png`` figure. Hidden entries (a file manager's
+    ``.DS_Store``, an interrupted writer's staging) are not counted, nor is anything
+    where the manifest cannot be read: a damaged manifest does not protect its folder
+    (as :func:`recorded_site_name`).
+    """
+    try:
+        names = sorted(path.name for path in directory.iterdir())
+        if marker == MANIFEST_FILE:
+            manifest = json.loads((directory / MANIFEST_FILE).read_text(encoding="utf-8"))
+            tables = manifest.get("tables") if isinstance(manifest, dict) else None
+            listed = {entry.get("file") for entry in tables.values() if isinstance(entry, dict)}
+            listed |= {MANIFEST_FILE, RUN_LOG, REPORT_FOLDER}
+        else:
+            listed = {marker} | {name for name in names if name.endswith(".png")}
+    except (OSError, UnicodeDecodeError, ValueError, AttributeError):
+        return []
+    return [name for name in names if name not in listed and not name.startswith(".")]
+
+
+def _write_protected(directory: Path) -> Path | None:
+    """The first folder in the tree of `directory` (itself included) whose entries this
+    process may not remove (no write or search permission), or None.
+
+    Removing a file takes write permission on the folder that lists it, not on the file
+    (POSIX ``unlink``), so only folders are asked.
+    """
+    for folder, _, _ in os.walk(directory):
+        if not os.access(folder, os.W_OK | os.X_OK):
+            return Path(folder)
+    return None
 
 
 # --------------------------------------------------------------------------- writing

@@ -88,6 +88,19 @@ _SOIL_ABOVE_AIR = 15.0
 #: is taken for °F: a snow-covered soil near 0 °C under a winter of -25 °C air is 25 K
 #: above the air but never this warm; °F values of a soil at -4 °C or above exceed it.
 _SOIL_FAHRENHEIT_MEDIAN = 25.0
+#: Hours after the first sunlit record of a day counted as its morning, when the CO2
+#: stored below the sensor overnight is mixed out and drawn down [h]; our choice: the
+#: morning transition of the boundary layer takes about 2-4 h after sunrise (common
+#: practice).
+_STORAGE_MORNING_HOURS = 4.0
+#: Days with both a pre-dawn and a morning storage mean a storage sign check needs
+#: [days]; our choice: two weeks hold calm and windy nights alike.
+_STORAGE_MIN_DAYS = 14
+#: Standard errors by which the days' mean pre-dawn storage must lie below their mean
+#: morning storage for the storage column to be called reversed [1]; 3, the usual
+#: bound of a one-sided test at about 0.1 % (the same bound as the storage-release
+#: warning of :mod:`fluxpart.storage_check`).
+_STORAGE_REVERSED_Z = 3.0
 # Usual band of the 90th percentile of |value| over a record, in the canonical unit,
 # used only to rank alternative units when several would make a column plausible
 # (our choice, common practice).
@@ -385,6 +398,68 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
                   "opposite sign")
 
 
+def _storage_sign_message(converted: dict, columns: dict, potential, stamps) -> str | None:
+    """A storage flux with the opposite sign (depletion positive), or None.
+
+    The storage flux is the rate of change of the CO2 held below the flux sensor,
+    positive where it grows. At night respiration is the only source and weak mixing
+    keeps its CO2 below the sensor, so the store grows until dawn (storage > 0); after
+    sunrise mixing and photosynthesis draw it down (storage < 0) (common practice: the
+    storage term's nocturnal build-up and morning flush). For each day the mean
+    storage from midnight to the first sunlit record (pre-dawn) is compared with the
+    mean over the next :data:`_STORAGE_MORNING_HOURS`. The column is reversed where,
+    over at least :data:`_STORAGE_MIN_DAYS` days, the median morning mean is positive
+    (a store that grows through the morning, when the right sign shows the flush) and
+    the days' pre-dawn minus morning means average :data:`_STORAGE_REVERSED_Z`
+    standard errors (over days) or more below zero. The pre-dawn sign alone does not decide: on windy nights the store
+    stops growing and its storage flux is near zero. Added with the wrong sign the
+    storage term subtracts the night's accumulation from NEE and the morning flush
+    adds to it, which the u* filter and the gap filling do not cancel.
+    """
+    storage = converted.get("storage")
+    if storage is None or potential is None or stamps is None:
+        return None
+    storage = np.asarray(storage, dtype=float)
+    sunlit = np.asarray(potential) > 0.0
+    days = np.asarray(stamps, dtype="datetime64[D]")
+    minutes = (np.asarray(stamps, dtype="datetime64[m]") - days).astype(float)
+    day_numbers = (days - days[0]).astype(int)
+    n_days = int(day_numbers[-1]) + 1
+    # minute of the day's first sunlit record (inf on a day without one)
+    sunrise = np.full(n_days, np.inf)
+    np.minimum.at(sunrise, day_numbers[sunlit], minutes[sunlit])
+    since = minutes - sunrise[day_numbers]
+    predawn = since < 0.0
+    morning = (since >= 0.0) & (since < _STORAGE_MORNING_HOURS * 60.0)
+    finite = np.isfinite(storage)
+
+    def daily_mean(rows):
+        total = np.bincount(day_numbers[rows & finite], storage[rows & finite], n_days)
+        count = np.bincount(day_numbers[rows & finite], minlength=n_days)
+        expected = np.bincount(day_numbers[rows], minlength=n_days)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            return np.where((count >= 2) & (count * 2 >= expected), total / count, np.nan)
+
+    night_mean, morning_mean = daily_mean(predawn), daily_mean(morning)
+    both = np.isfinite(night_mean) & np.isfinite(morning_mean)
+    if both.sum() < _STORAGE_MIN_DAYS:
+        return None
+    night_median = float(np.median(night_mean[both]))
+    morning_median = float(np.median(morning_mean[both]))
+    contrast = night_mean[both] - morning_mean[both]
+    error = float(np.std(contrast, ddof=1)) / math.sqrt(contrast.size)
+    z = float(np.mean(contrast)) / error if error > 0 else 0.0
+    if morning_median <= 0.0 or z > -_STORAGE_REVERSED_Z:
+        return None
+    return (f"column {columns['storage']!r} (storage): over {int(both.sum())} days its median "
+            f"is {night_median:.3g} µmol m-2 s-1 before dawn and {morning_median:+.3g} in the "
+            f"{_STORAGE_MORNING_HOURS:g} h after sunrise, lower before dawn by {-z:.1f} "
+            "standard errors: CO2 accumulates below the sensor at night "
+            "(storage > 0) and is flushed in the morning (< 0), so the column looks like "
+            "storage with the opposite sign: negate it in a copy of the file (or list "
+            "storage in [input] accept_units to keep it as it is)")
+
+
 def _months_refused(check, converted: dict, potential, stamps) -> list:
     """Calendar months ("YYYY-MM") whose records alone `check` refuses.
 
@@ -504,7 +579,7 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
 
 
 def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes: int):
-    """Soil temperature in °F read as °C, where few values leave the plausible range.
+    """Soil temperature in °F or K read as °C, where few values leave the plausible range.
 
     Near the surface the soil follows the air: over the same records their medians differ
     by a few K. A soil of a cool site in °F (32-59) passes the 60 °C range limit and would
@@ -519,11 +594,15 @@ def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes
     soil, air = float(np.median(tsoil[both])), float(np.median(tair[both]))
     if soil - air <= _SOIL_ABOVE_AIR or soil <= _SOIL_FAHRENHEIT_MEDIAN:
         return None
+    # the unit named is the one that brings the soil's median nearest the air's: kelvin
+    # (soil - 273.15) puts a soil read as 280 °C at 7 °C, °F would put it at 138 °C
+    candidates = {"°F": (soil - 32.0) * 5.0 / 9.0, "K": soil - 273.15}
+    unit = min(candidates, key=lambda name: abs(candidates[name] - air))
     return (f"column {columns['tsoil']!r} (tsoil, read as °C): its median is {soil:.1f} °C, "
             f"{soil - air:.1f} K above the air temperature's ({air:.1f} °C) over the same "
             "records, where a soil near the surface stays within a few K of the air; the "
-            f"values look like °F ({(soil - 32.0) * 5.0 / 9.0:.1f} °C): set [input.units] "
-            "tsoil = \"°F\" (or list tsoil in [input] accept_units)")
+            f"values look like {unit} ({candidates[unit]:.1f} °C): set [input.units] "
+            f"tsoil = \"{unit}\" (or list tsoil in [input] accept_units)")
 
 
 def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: int,
@@ -646,6 +725,9 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                     "nee", columns, "NEE with the opposite sign (negative night "
                     "median, uptake tail shorter than the release tail)",
                     converted, potential, stamps)
+        refuse = _storage_sign_message(converted, columns, potential, stamps)
+        if refuse:
+            refusals["storage"] = refuse
         refuse = _tair_message(converted, units, columns, interval_minutes)
         if refuse:
             refusals["tair"] = refuse

@@ -156,7 +156,8 @@ class Difference:
                     "computed from, so nothing was recomputed")
         if self.kind == "hash":
             return (f"{self.table}: file SHA-256 {self.recomputed} is not the {self.stored} "
-                    "recorded in manifest.json (the file was changed after it was written)")
+                    f"recorded in manifest.json ({self.column or 'the file'} was changed after "
+                    "it was written)")
         if self.kind in ("seal", "extra", "format"):
             return f"{self.table}: {self.column} {self.stored}"
         if self.kind == "file":
@@ -240,6 +241,12 @@ class VerifyReport:
         """Largest relative difference among the rounding differences (0 when none)."""
         values = [d.relative for d in self.rounding if np.isfinite(d.relative)]
         return max(values) if values else 0.0
+
+    @property
+    def changed_files(self) -> list[str]:
+        """Files of the folder whose bytes differ from the recorded SHA-256 (named even in
+        the one-line verdict of ``--quiet``)."""
+        return [d.column for d in self.differences if d.kind == "hash" and d.column]
 
     @property
     def exit_code(self) -> int:
@@ -625,6 +632,51 @@ def _same_but_input_path(path: Path, copy: Path | None) -> bool:
     return documents[0] == documents[1]
 
 
+def _config_changes(path: Path, copy: Path | None, limit: int = 5) -> str:
+    """The settings in which the site config at `path` differs from the recorded `copy`.
+
+    Returns text such as ``"; changed since the run: [processing] seed 0 -> 1"``
+    (at most `limit` keys named, the rest counted), or "" where either file cannot
+    be read as TOML or they hold the same settings.
+    """
+    import tomllib
+
+    if copy is None:
+        return ""
+    try:
+        now, then = (tomllib.loads(p.read_text(encoding="utf-8-sig")) for p in (path, copy))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        return ""
+
+    def flat(document, prefix=""):
+        out = {}
+        for key, value in document.items():
+            if isinstance(value, dict):
+                out.update(flat(value, f"{prefix}{key}."))
+            else:
+                out[f"{prefix}{key}"] = value
+        return out
+
+    now, then = flat(now), flat(then)
+    missing = object()
+    changed = [key for key in sorted(set(now) | set(then))
+               if now.get(key, missing) != then.get(key, missing)]
+    if not changed:
+        return ""
+
+    def shown(value):
+        return "(absent)" if value is missing else repr(value)
+
+    def name(key):
+        section, _, leaf = key.rpartition(".")
+        return f"[{section}] {leaf}" if section else leaf
+
+    parts = [f"{name(key)} {shown(then.get(key, missing))} -> {shown(now.get(key, missing))}"
+             for key in changed[:limit]]
+    more = f" and {len(changed) - limit} more" if len(changed) > limit else ""
+    return "; changed since the run: " + ", ".join(parts) + more
+
+
 def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: list):
     """Return (site config for the rerun, site config that locates the input, difference).
 
@@ -660,8 +712,8 @@ def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: l
                      "input")
         return copy, path, None
     if copy is not None:
-        where = (f"the file at {str(path)!r} is another version" if path is not None
-                 and path.is_file() else f"it is not at {str(path)!r}")
+        where = (f"the file at {str(path)!r} is another version{_config_changes(path, copy)}"
+                 if path is not None and path.is_file() else f"it is not at {str(path)!r}")
         notes.append(f"site config: {where}; used the copy of its text recorded in the "
                      "manifest (SHA-256 checked)")
         return copy, None, None
@@ -893,7 +945,8 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                       if isinstance(e, dict) and e.get("file") == problem.file), "folder")
         if kind == "hash":
             entry = manifest["tables"][table]
-            differences.append(Difference(table, "hash", stored=str(entry.get("sha256")),
+            differences.append(Difference(table, "hash", column=problem.file,
+                                          stored=str(entry.get("sha256")),
                                           recomputed=file_sha256(directory / problem.file)))
         elif kind == "file":
             differences.append(Difference(table, "file", stored=problem.file,
@@ -1018,7 +1071,10 @@ def command_verify(args) -> int:
     # --quiet: the verdict and the caution, without the per-column detail
     if getattr(args, "quiet", False):
         identity = [line for line in lines if line.startswith("result: ")]
-        lines = [lines[0].rstrip(":"), *identity, lines[-1]]
+        changed = report.changed_files
+        headline = lines[0].rstrip(":") + (
+            f" ({', '.join(changed)} changed after it was written)" if changed else "")
+        lines = [headline, *identity, lines[-1]]
     print("\n".join(lines))
     return report.exit_code
 

@@ -16,6 +16,7 @@ from fluxpart.clock import (
     ClockVerdict,
     check_clock,
     check_hemisphere,
+    check_latitude,
     monthly_shifts,
     shift_threshold_minutes,
 )
@@ -309,3 +310,38 @@ def test_lag_correlations_in_one_pass_equal_one_lag_at_a_time(missing):
     ok = np.isfinite(envelope)
     reference = [np.corrcoef(envelope[ok], np.roll(model, k)[ok])[0, 1] for k in range(slots)]
     np.testing.assert_allclose(got, reference, rtol=0, atol=1e-12)
+
+
+@pytest.mark.parametrize("true_latitude, configured, longitude, utc_offset", [
+    (49.3, 30.0, 10.2, 1.0),       # a site TOML pointing at a file from 19° further north
+    (49.3, 65.0, 10.2, 1.0),       # ... or 16° further south (the run filled no year fully)
+    (-35.3, -20.0, 149.1, 10.0),   # southern hemisphere, same sign
+    (20.0, 45.0, -100.0, -6.0),
+])
+def test_latitude_far_off_the_file_is_named(true_latitude, configured, longitude, utc_offset):
+    """Day length against latitude and season (FAO-56 eq. 34): Rg of a site at one latitude
+    read with a latitude 15° or more away (another site's file, a typo) has day lengths that
+    swing against the configured sun through the year; the check names the latitude the
+    day lengths fit, within 3° (the scan's 1° step plus cloud and diffuse-light noise). It
+    passed before with at most a generic warning (review, round six)."""
+    rg = synthetic_rg(true_latitude, longitude, utc_offset, interval_minutes=30,
+                      cloudiness="cloudy", seed=3)
+    verdict = _check(rg, configured, longitude, utc_offset, 30)
+    assert verdict.status == "latitude"
+    problem = next(p for p in verdict.problems if "day lengths of Rg fit latitude" in p)
+    named = float(problem.split("fit latitude ")[1].split(" ")[0])
+    assert abs(named - true_latitude) <= 3.0
+    assert "[site] latitude" in problem and "[input] path" in problem
+
+
+@pytest.mark.parametrize("latitude, longitude, utc_offset, interval, cloudiness, extra", CORRECT)
+def test_latitude_check_passes_correct_sites(latitude, longitude, utc_offset, interval,
+                                             cloudiness, extra):
+    """The correct sites of CORRECT (polar, tilted, shaded, cloudy, near the equator) give no
+    latitude mismatch, and a latitude 5° off (below MIN_LATITUDE_ERROR) is not called one."""
+    rg = synthetic_rg(latitude, longitude, utc_offset, interval_minutes=interval,
+                      cloudiness=cloudiness, seed=int(abs(latitude)), **extra)
+    for configured in (latitude, latitude - 5.0 if latitude > 0 else latitude + 5.0):
+        verdict = check_latitude(rg.index, rg.to_numpy(), configured, longitude, utc_offset,
+                                 interval)
+        assert verdict[0] != "mismatch", verdict[1]

@@ -842,6 +842,20 @@ def test_report_out_holding_other_files_is_refused(folder, tmp_path, capsys):
     assert _files(notes) == {"todo.txt": b"keep me"}
 
 
+
+def test_report_folder_holding_a_file_of_the_user_is_not_replaced(folder, tmp_path, capsys):
+    """A report folder with the user's own file beside the page (notes, a copy of the input):
+    a new report replaced the folder whole and deleted the file (review, round six).
+    Refused naming it; the page's own figures (.png) do not count."""
+    out = tmp_path / "page"
+    assert main(["report", str(folder["directory"]), "--out", str(out), "--quiet"]) == 0
+    (out / "notes.txt").write_text("keep me")
+    assert main(["report", str(folder["directory"]), "--out", str(out), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "holds 'notes.txt'" in err[-1]
+    assert (out / "notes.txt").read_text() == "keep me"
+
+
 def test_report_out_inside_its_report_folder_leaves_no_lock_file_there(folder, tmp_path,
                                                                        monkeypatch):
     """--out DIR/report given explicitly: the lock is the result folder's (beside it), not a

@@ -513,3 +513,49 @@ def test_failed_or_interrupted_block_leaves_no_lock_file(tmp_path):
             assert resultdir.lock_file(out).exists()
             raise error
         assert not resultdir.lock_file(out).exists()
+
+
+def test_write_protected_result_is_refused_not_left_hidden(short_result, tmp_path, monkeypatch):
+    """A result folder made read-only (chmod -R a-w, to keep it) sits in a writable parent:
+    the swap succeeded, the old result could not be removed (deleting a file needs write
+    permission on its folder, POSIX unlink) and stayed as a hidden `.OUT.staging-*` folder
+    that no later run removed either (review, round six). It is refused before writing and
+    left as it was. Root may write anywhere, so as root os.access is replaced by the owner's
+    permission bits, the check an ordinary user's process gets."""
+    out = tmp_path / "out"
+    short_result.write(out)
+    before = read_folder(out)[0]["seal"]
+    (out).chmod(0o555)
+    if os.geteuid() == 0:
+        monkeypatch.setattr(resultdir.os, "access",
+                            lambda path, mode: os.stat(path).st_mode & 0o200 != 0)
+    try:
+        with pytest.raises(OutputError, match="is write-protected .*chmod -R u\\+w"):
+            short_result.write(out)
+        assert read_folder(out)[0]["seal"] == before
+        assert _leftovers(out) == []
+    finally:
+        out.chmod(0o755)
+    monkeypatch.undo()
+    short_result.write(out)                         # writable again: replaced, nothing left
+    assert _leftovers(out) == []
+
+
+def test_result_folder_holding_unlisted_files_is_not_replaced(short_result, tmp_path):
+    """An input file (or the site config, or notes) moved into an earlier result folder:
+    the next run replaced the folder whole and deleted the input without a word (review,
+    round six). Refused, naming the file, and nothing is changed; hidden entries (a file
+    manager's) do not count."""
+    out = tmp_path / "out"
+    short_result.write(out)
+    before = read_folder(out)[0]["seal"]
+    (out / "tower.csv").write_text("time,nee\n")
+    with pytest.raises(OutputError, match="holds 'tower.csv', which fluxpart did not write "
+                                          "there.*delete them"):
+        short_result.write(out)
+    assert (out / "tower.csv").read_text() == "time,nee\n"
+    assert _leftovers(out) == []
+    (out / "tower.csv").unlink()
+    assert read_folder(out)[0]["seal"] == before
+    (out / ".DS_Store").write_text("")
+    short_result.write(out)

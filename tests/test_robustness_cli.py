@@ -243,3 +243,19 @@ def test_out_that_is_the_current_folder_is_refused_before_computing(tmp_path, ca
         assert "current folder" in err[0]
     assert list(inside.iterdir()) == []
     assert [p.name for p in (tmp_path / "results").iterdir()] == ["here"]
+
+
+def test_run_with_a_missing_input_file_is_one_error_line(tmp_path, capsys):
+    """The input's SHA-256 is taken before the read; a config naming an absent file (a
+    60-minute example's CSV renamed, a typo) must give the reader's one `error:` line naming
+    `[input] path`, as `check` does, not an OSError traceback (contract: README "Command
+    line", a user error is one line and exit 2)."""
+    from fluxpart import demo
+
+    config = demo.write_example(tmp_path / "site")
+    config.with_suffix(".csv").rename(tmp_path / "site" / "renamed.csv")
+    status = main(["run", str(config), "--out", str(tmp_path / "out"), "--quiet"])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert status == 2
+    assert len(err) == 1 and err[0].startswith("error: [input] path") and "does not exist" in err[0]
+    assert not (tmp_path / "out").exists()

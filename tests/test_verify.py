@@ -535,3 +535,32 @@ def test_a_killed_verify_leaves_no_scratch_for_long(tmp_path):
     other.mkdir()
     assert remove_dead_scratch(tmp_path) == [dead.name]
     assert not dead.exists() and running.exists() and other.exists()
+
+
+def test_site_config_edited_after_the_run_names_the_changed_settings(copy, capsys):
+    """The site config beside the result edited after the run (a setting changed, one
+    added): verify reruns from the recorded copy, as before, and now says which settings
+    differ, with both values, so the auditor knows the file at hand is not what ran."""
+    config = copy / "site.toml"
+    text = config.read_text()
+    assert "[processing]" in text
+    config.write_text(text + "despike_z = 9.0\n")
+    assert main(["verify", str(copy / "out")]) == 0
+    out = capsys.readouterr().out
+    assert "is another version; changed since the run: [processing] despike_z (absent) -> 9.0" \
+        in out
+
+
+def test_one_flipped_byte_is_named_by_its_file_even_quiet(copy, capsys):
+    """One byte of a Parquet file flipped (bit rot, a hand edit): exit 1, and the file is
+    named by its name on disk, also in the one-line verdict of --quiet, which named no file
+    before (review, round six)."""
+    path = copy / "out" / "daily.parquet"
+    data = bytearray(path.read_bytes())
+    data[len(data) // 2] ^= 0x01
+    path.write_bytes(bytes(data))
+    assert main(["verify", str(copy / "out"), "--quiet"]) == 1
+    first = capsys.readouterr().out.splitlines()[0]
+    assert first.startswith("NOT reproduced") and "daily.parquet changed" in first
+    assert main(["verify", str(copy / "out")]) == 1
+    assert "(daily.parquet was changed after it was written)" in capsys.readouterr().out
