@@ -54,7 +54,7 @@ import pandas as pd
 
 from ._quantile import nanquantile
 from .site import FRACTIONAL_UTC_OFFSETS
-from .solar import potential_radiation
+from .solar import interval_sun, potential_at_latitude, potential_radiation
 
 __all__ = [
     "ClockVerdict",
@@ -561,10 +561,12 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
     masks = [(month_of_day == start) & good_day for start in usable.index]
     rg_width = usable["daylength_rg"].to_numpy()
 
+    sun = interval_sun(index, longitude, utc_offset, interval)    # the same at every latitude
+
     def swing(candidate: float) -> float:
         """Standard deviation over the usable months of Rg's minus the sun's width [min]."""
         matrix = np.full(rg_matrix.shape, np.nan)
-        matrix[layout] = potential_radiation(index, candidate, longitude, utc_offset, interval)
+        matrix[layout] = potential_at_latitude(sun, candidate)
         widths = np.array([_crossings(np.nanmean(np.where(present[m], matrix[m], np.nan),
                                                  axis=0), interval, EDGE_LEVEL)[1]
                            for m in masks])

@@ -24,7 +24,9 @@ from .errors import ConfigError, LengthMismatchError, SpacingError, TimestampErr
 
 __all__ = [
     "interval_midpoint_elevation",
+    "interval_sun",
     "night_mask",
+    "potential_at_latitude",
     "potential_radiation",
     "solar_geometry",
     "sun_elevation",
@@ -302,6 +304,19 @@ def potential_radiation(index, latitude, longitude, utc_offset,
     evapotranspiration. FAO Irrigation and Drainage Paper 56, Rome, eqs. 21–25.
     """
     _check_location(latitude, longitude, utc_offset)
+    return potential_at_latitude(interval_sun(index, longitude, utc_offset, interval_minutes),
+                                 latitude)
+
+
+def interval_sun(index, longitude, utc_offset, interval_minutes=None) -> tuple:
+    """The sun's course over each interval, which does not depend on latitude.
+
+    Returns ``(declination, h1, h2, span, eccentricity)``: declination [rad] and
+    (r0/r)^2 [1] at each interval's middle, the hour angles at its start (in
+    [-π, π)) and end [rad], and the hour-angle span of an interval [rad]; for
+    :func:`potential_at_latitude`, which gives :func:`potential_radiation` at any
+    latitude from them (a scan over latitudes computes the sun's position once).
+    """
     minutes = _interval_minutes(index, interval_minutes)
     instants = _as_datetime64(index, "index")
     start = _utc_seconds(instants, utc_offset)
@@ -310,6 +325,12 @@ def potential_radiation(index, latitude, longitude, utc_offset,
     span = 2.0 * np.pi * minutes / _MINUTES_PER_DAY
     h1 = np.mod(h_middle - 0.5 * span + np.pi, 2.0 * np.pi) - np.pi   # in [-π, π)
     h2 = h1 + span                                            # below 3π
+    return declination, h1, h2, span, eccentricity
+
+
+def potential_at_latitude(sun: tuple, latitude: float) -> np.ndarray:
+    """:func:`potential_radiation` [W m-2] at `latitude` [degrees] from :func:`interval_sun`."""
+    declination, h1, h2, span, eccentricity = sun
     phi = np.radians(latitude)
     a = np.sin(phi) * np.sin(declination)
     b = np.cos(phi) * np.cos(declination)
