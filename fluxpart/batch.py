@@ -63,7 +63,7 @@ from .config import Config, suggest_key
 from .errors import ConfigError, FluxpartError, InputFileError, OutputError
 from .fingerprint import code_fingerprint
 from .manifest import CAUTION, MANIFEST_FILE, MANIFEST_FORMAT, library_versions, read_manifest
-from .resultdir import check_folder
+from .resultdir import check_folder, folder_lock
 from .schema import units_for_table
 from .store import (
     atomic_write_bytes,
@@ -541,7 +541,8 @@ def _write_network(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFrame]:
     First :data:`NETWORK_SEAL` is marked incomplete; the files follow; the seal is
     written last, naming each file's SHA-256 and each site folder's manifest seal,
     which :func:`read_network` checks. A batch stopped on the way leaves a seal
-    that says incomplete or does not match, never a silent mix.
+    that says incomplete or does not match, never a silent mix. Batches writing
+    into the same `out` take turns (the lock file ``.network.json.lock`` in `out`).
 
     Returns
     -------
@@ -550,6 +551,14 @@ def _write_network(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFrame]:
     failures : pandas.DataFrame
         The failures table.
     """
+    # Two batches into one output folder would otherwise swap their network folders in
+    # and out at the same moment: one failed, left a stray .old folder, or sealed the
+    # other's files (two threads, 20 rounds: one FileNotFoundError). One at a time.
+    with folder_lock(out / NETWORK_SEAL, remove=True):
+        return _write_network_locked(outcomes, out)
+
+
+def _write_network_locked(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFrame]:
     done = [o for o in outcomes if o.status != "failed"]
     atomic_write_bytes(out / NETWORK_SEAL, _seal_bytes({"format": _NETWORK_FORMAT,
                                                          "complete": False}))
@@ -795,7 +804,12 @@ def _client(scheduler, workers):
                 _use_fork_server()
             cluster = LocalCluster(n_workers=workers or _DEFAULT_WORKERS, threads_per_worker=1,
                                    processes=True, host="127.0.0.1", dashboard_address=None,
-                                   silence_logs=logging.ERROR)
+                                   silence_logs=logging.ERROR,
+                                   # no dashboard, but the scheduler still serves HTTP
+                                   # (health, metrics): on a free port, not on 8787, which
+                                   # another cluster or batch may hold (Dask then warned
+                                   # "Port 8787 is already in use" on stderr)
+                                   scheduler_kwargs={"dashboard_address": "127.0.0.1:0"})
     finally:
         for name in set(os.environ) - set(saved):
             del os.environ[name]

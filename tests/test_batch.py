@@ -631,3 +631,75 @@ def test_network_tables_are_read_only_when_they_match_their_seal(towers, tmp_pat
     batch.run_batch(sites, scheduler=cluster.scheduler_address)
     assert (out / batch.NETWORK_SEAL).read_bytes() == intact          # rerun: the same seal
     pd.testing.assert_frame_equal(batch.read_network(out, "daily"), daily)
+
+
+def test_two_batches_write_their_network_tables_one_at_a_time(towers, tmp_path, monkeypatch):
+    """Two batches into one output folder (review 6: two threads writing the network tables
+    of the same sites, 20 rounds, failed once with FileNotFoundError between the two renames
+    of a folder swap and left a ``.network_daily.old.*`` folder). The writes take turns under
+    a lock file: never two swaps at once, no error, no leftover, the seal read back (POSIX
+    ``flock`` semantics: one holder per file; common practice of the filelock library)."""
+    import threading
+
+    root, configs = towers
+    out = tmp_path / "out"
+    outcomes = [batch.run_site(key, config, out / key) for key, config in configs.items()]
+    assert {o.status for o in outcomes} == {"written"}
+    inside, most, errors = [0], [0], []
+    original = batch._replace_folder
+
+    def slow_replace(staging, target):
+        inside[0] += 1
+        most[0] = max(most[0], inside[0])
+        time.sleep(0.1)
+        inside[0] -= 1
+        original(staging, target)
+
+    monkeypatch.setattr(batch, "_replace_folder", slow_replace)
+    start = threading.Barrier(2)
+
+    def write():
+        try:
+            start.wait()
+            batch._write_network(outcomes, out)
+        except Exception as error:  # noqa: BLE001  collected for the assertion
+            errors.append(error)
+
+    threads = [threading.Thread(target=write) for _ in range(2)]
+    for thread in threads:
+        thread.start()
+    for thread in threads:
+        thread.join()
+    assert errors == [] and most[0] == 1
+    assert sorted(p.name for p in out.iterdir() if p.name.startswith(".")) == []
+    assert sorted(batch.read_network(out)["site"].unique()) == sorted(configs)
+
+
+def test_local_cluster_leaves_port_8787_to_others():
+    """Dask's scheduler serves HTTP (health, metrics) even without a dashboard, on port 8787
+    unless told otherwise, and warns "Port 8787 is already in use" on stderr where another
+    cluster or batch holds it (distributed 2026.8, ``ServerNode.start_http_server``; review
+    6: two batches at once printed it). fluxpart's local cluster takes a free port on
+    127.0.0.1 and says nothing."""
+    import socket
+    import warnings
+
+    holder = socket.socket()
+    try:
+        holder.bind(("127.0.0.1", 8787))
+        holder.listen()
+    except OSError:
+        pass                     # already taken by another process: the same condition
+    try:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            client, cluster = batch._client(None, 1)
+            try:
+                server = cluster.scheduler.http_server
+                assert server.address == "127.0.0.1" and server.port != 8787
+            finally:
+                client.close()
+                cluster.close()
+    finally:
+        holder.close()
+    assert not [w for w in caught if "already in use" in str(w.message)]
