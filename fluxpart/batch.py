@@ -760,21 +760,28 @@ def _use_fork_server() -> None:
     get_mp_context().set_forkserver_preload(list(_WORKER_PRELOAD))
 
 
-def _client(scheduler, workers):
-    """Return (client, cluster or None) for an address or a new local cluster."""
+def _check_cluster_options(scheduler, workers) -> None:
+    """Refuse a missing Dask or bad worker options (before the output folder is made)."""
     try:
-        import dask
-        from dask.distributed import Client, LocalCluster
+        import dask.distributed  # noqa: F401
     except ImportError:
         raise ConfigError("fluxpart batch needs Dask: install it with "
                           "pip install 'fluxpart[batch]' (dask[distributed])") from None
     if workers is not None and (not isinstance(workers, int) or isinstance(workers, bool)
                                 or workers < 1):
         raise ConfigError(f"--workers {workers!r}: expected a whole number >= 1")
+    if scheduler and workers is not None:
+        raise ConfigError("--workers applies to the local cluster only; with --scheduler "
+                          "the cluster's own workers are used")
+
+
+def _client(scheduler, workers):
+    """Return (client, cluster or None) for an address or a new local cluster."""
+    _check_cluster_options(scheduler, workers)
+    import dask
+    from dask.distributed import Client, LocalCluster
+
     if scheduler:
-        if workers is not None:
-            raise ConfigError("--workers applies to the local cluster only; with --scheduler "
-                              "the cluster's own workers are used")
         try:
             return Client(scheduler, timeout=_CONNECT_TIMEOUT_SECONDS), None
         except (OSError, TimeoutError, ValueError) as error:
@@ -878,6 +885,7 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     network = read_sites_file(sites_file)
     out = (Path(out) if out is not None else network.out).resolve()
     _check_out(out)
+    _check_cluster_options(scheduler, workers)   # a usage error leaves no new folder
     _make_writable_out(out)          # before the cluster starts and any site is computed
     _sweep_leftovers(out, started)
     client, cluster = _client(scheduler, workers)

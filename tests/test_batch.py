@@ -157,11 +157,26 @@ def test_example_network_file_lists_the_example_sites():
     (["--workers", "2", "--scheduler", "tcp://127.0.0.1:9"], r"--workers applies to the local"),
 ])
 def test_bad_worker_options_exit_2(towers, tmp_path, capsys, extra, match):
-    """Worker options are checked before any cluster starts."""
+    """Worker options are checked before any cluster starts, and before the output folder
+    is made (review 6: each left an empty new folder behind)."""
     root, configs = towers
     sites = _network_file(tmp_path, [str(configs["tower0"])])
     assert main(["batch", str(sites), "--quiet", *extra]) == 2
     assert pd.Series([capsys.readouterr().err]).str.contains(match).all()
+    assert not (tmp_path / "network-output").exists()
+
+
+def test_missing_dask_is_one_error_line_and_no_folder(towers, tmp_path, capsys, monkeypatch):
+    """Without the batch extra: one ``error:`` line naming the install, exit 2, no output
+    folder (Python's import system: a ``None`` entry in ``sys.modules`` makes the import
+    raise ImportError, the state of an environment without Dask)."""
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(configs["tower0"])])
+    monkeypatch.setitem(sys.modules, "dask.distributed", None)
+    assert main(["batch", str(sites), "--quiet"]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("error: fluxpart batch needs Dask") and err.count("\n") == 1
+    assert "fluxpart[batch]" in err and not (tmp_path / "network-output").exists()
 
 
 def test_unreachable_scheduler_is_a_clear_error(towers, tmp_path, monkeypatch):
