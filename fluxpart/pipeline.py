@@ -277,7 +277,8 @@ def _prepare(frame, site: Site) -> tuple:
 
     A tz-aware index is converted to the site's local standard time (UTC +
     ``site.utc_offset``, no daylight saving) and made tz-naive; columns that are not
-    canonical variables are left out (the caller's frame is not modified).
+    canonical variables are left out; numeric columns become float64 (missing values
+    NaN). The caller's frame is not modified.
     """
     notes = []
     if not isinstance(frame, pd.DataFrame):
@@ -292,6 +293,14 @@ def _prepare(frame, site: Site) -> tuple:
         notes.append(f"column(s) {', '.join(map(repr, map(str, unknown)))} are not canonical "
                      f"variables and were ignored (canonical: {', '.join(VARIABLES)})")
         frame = frame.drop(columns=unknown)
+    # float64, as the file reader gives them: float32, float16, nullable (Float64, Int64)
+    # or Arrow columns were otherwise echoed in the time series with their own type
+    # (a float16 rh written as Parquet halffloat), so the tables' schema followed the
+    # caller's dtypes; a missing value (pd.NA) becomes NaN
+    widen = {name: "float64" for name in frame.columns
+             if frame[name].dtype != np.float64 and pd.api.types.is_numeric_dtype(frame[name])}
+    if widen:
+        frame = frame.astype(widen)
     return frame, notes
 
 
@@ -619,7 +628,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         ``nee_flag``) on a regular 30- or 60-minute DatetimeIndex of interval starts
         in local standard time; one or more years. Not modified. A tz-aware index
         is converted with ``site.utc_offset``; other columns are ignored (each with
-        a warning). A budget year at either end holding less than a day of records is
+        a warning); numeric columns of any dtype (float32, nullable, Arrow) are read
+        as float64, so the tables' column types do not depend on them. A budget year at either end holding less than a day of records is
         left out, and up to a day absent at a year's edges is added as gaps
         (:func:`fluxpart.timestamps.budget_year_edges`; each with a warning).
     site : Site

@@ -228,6 +228,32 @@ def test_zoned_index_is_converted_and_extra_columns_ignored():
     assert len(repr(result)) < 200 and site.name in repr(result)
 
 
+def test_column_types_of_the_caller_do_not_reach_the_tables(tmp_path):
+    """Review 6: float32, float16, nullable (pandas ``Float64``/``Int64`` with ``pd.NA``) and
+    Arrow-backed columns were echoed in the time series with their own type (a float16 rh
+    written as Parquet halffloat). They are read as float64, as the file reader gives them,
+    so the written schema equals that of a float64 frame (pyarrow's schema, the reference);
+    the values are the float64 widening of the caller's (IEEE 754: float32 and float16
+    widen to float64 exactly)."""
+    import pyarrow.parquet as pq
+
+    frame, _ = demo.site_year(seed=0, interval_minutes=60)
+    site, config = demo.site(), Config(ustar_method="fixed", random_error_draws=20)
+    measured = ["nee", "rg", "tair", "vpd", "ustar", "tsoil", "rh"]
+    odd = frame.astype({"nee": "float32", "rg": "Float64", "tair": "double[pyarrow]",
+                        "rh": "float16"}).assign(nee_flag=frame["nee_flag"].astype("Int64"))
+    odd.loc[odd.index[5], "rg"] = pd.NA
+    widened = odd.astype({name: "float64" for name in measured}).assign(
+        nee_flag=frame["nee_flag"].astype(float))
+    process(widened, site, config).write(tmp_path / "plain")
+    process(odd, site, config).write(tmp_path / "odd")
+    plain = pq.read_table(tmp_path / "plain" / "timeseries.parquet")
+    found = pq.read_table(tmp_path / "odd" / "timeseries.parquet")
+    assert found.schema.equals(plain.schema, check_metadata=True)
+    assert found.equals(plain)
+    assert odd["rh"].dtype == np.float16                       # the caller's frame untouched
+
+
 def test_too_little_night_data_fails_clearly_unless_a_fallback_is_chosen():
     """A year without usable night NEE fails naming e0_fallback; the opt-in fall-back is flagged."""
     frame, _ = demo.site_year(seed=0)
