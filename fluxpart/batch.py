@@ -1071,7 +1071,7 @@ def _summary(report: BatchReport) -> str:
                       formatters={"ustar_threshold": lambda v: f"{v:9.3f}"})]
     lines += [f"warning: {warning}" for warning in report.warnings]
     datasets = ", ".join(f"{folder}/" for folder in NETWORK_DATASETS.values())
-    lines += ["", f"Wrote {report.out}/ (one result folder per site, {datasets} "
+    lines += ["", f"Wrote {report.out}/ (one result folder per site, {datasets}, "
               f"{FAILURES_FILE})", f"Caution: {CAUTION}"]
     return "\n".join(lines)
 

@@ -257,6 +257,7 @@ def test_batch_is_byte_identical_to_fluxpart_run(towers, tmp_path, capsys):
     assert main(["batch", str(sites), "--quiet"]) == 0
     printed = capsys.readouterr().out
     assert "3 processed, 0 up to date (skipped), 0 failed" in printed
+    assert "network_daily/, failures.parquet)" in printed      # a list, commas between
     out = tmp_path / "network-output"
     for key, config in configs.items():
         single = tmp_path / "single" / key
