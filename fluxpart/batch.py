@@ -476,9 +476,11 @@ def _failure(common: dict, error: BaseException) -> SiteOutcome:
     kind = "input" if isinstance(error, FluxpartError) else "internal"
     text = str(error) or repr(error)
     trace = "" if kind == "input" else "".join(traceback.format_exception(error))
-    return SiteOutcome(status="failed", note=f"{type(error).__name__}: {text}",
-                       error=type(error).__name__, message=text, kind=kind, traceback=trace,
-                       **common)
+    # the first public class: a private subclass (the reader's _EmptyFileError) is no
+    # name a user can look up or catch
+    name = next(c.__name__ for c in type(error).__mro__ if not c.__name__.startswith("_"))
+    return SiteOutcome(status="failed", note=f"{name}: {text}", error=name, message=text,
+                       kind=kind, traceback=trace, **common)
 
 
 # --------------------------------------------------------------------------- network tables

@@ -200,6 +200,20 @@ def test_run_site_reports_failures_instead_of_raising(towers, tmp_path, monkeypa
     assert "co2_flux_nowhere" in outcome.message
     assert not (tmp_path / "out").exists()
 
+    # review 6: a header-only file's private error class (_EmptyFileError) stood in the
+    # failures table and on stderr; the public class the README documents is named
+    empty = tmp_path / "empty"
+    empty.mkdir()
+    config = empty / "empty.toml"
+    text = configs["tower0"].read_text(encoding="utf-8")
+    csv_name = text.split('path = "', 1)[1].split('"', 1)[0]
+    config.write_text(text, encoding="utf-8")
+    original = (configs["tower0"].parent / csv_name).read_text(encoding="utf-8")
+    (empty / csv_name).write_text(original.splitlines()[0] + "\n", encoding="utf-8")
+    outcome = batch.run_site("empty", config, tmp_path / "out" / "empty")
+    assert (outcome.kind, outcome.error) == ("input", "InputFileError")
+    assert outcome.note.startswith("InputFileError: ") and "no records" in outcome.message
+
     def explode(path):
         raise ZeroDivisionError("a fault inside")
 
