@@ -64,7 +64,7 @@ from .errors import ConfigError, FluxpartError, InputFileError, OutputError
 from .fingerprint import code_fingerprint
 from .manifest import CAUTION, MANIFEST_FILE, MANIFEST_FORMAT, library_versions, read_manifest
 from .resultdir import check_folder, folder_lock
-from .schema import units_for_table
+from .schema import TIME_CONVENTION, units_for_table
 from .store import (
     atomic_write_bytes,
     file_sha256,
@@ -509,8 +509,13 @@ def _unify(tables: list[pa.Table], name: str = "annual") -> list[pa.Table]:
     fields = [pa.field(f.name, f.type, metadata={b"unit": units[f.name][0].encode(),
                                                  b"description": units[f.name][1].encode()})
               for f in schema]
-    meta = {b"fluxpart": json.dumps({"table": NETWORK_DATASETS[name], "partitioning": "site"},
-                                    sort_keys=True).encode()}
+    # units and descriptions in the file's key-value metadata too, as in a site's own
+    # tables: DuckDB's parquet_kv_metadata and Polars' read_parquet_metadata see only these
+    columns = {f.name: {"unit": units[f.name][0], "description": units[f.name][1]}
+               for f in schema}
+    meta = {b"fluxpart": json.dumps({"table": NETWORK_DATASETS[name], "partitioning": "site",
+                                     "time_convention": TIME_CONVENTION, "columns": columns},
+                                    sort_keys=True, ensure_ascii=False).encode()}
     schema = pa.schema(fields, metadata=meta)
     out = []
     for table in tables:

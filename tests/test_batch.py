@@ -406,6 +406,20 @@ def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster
     assert sorted(table["site"].astype(str).unique()) == sorted(configs)
     assert pq.read_schema(folder / "site=tower0" / "part-0.parquet").field(
         "nee").metadata[b"unit"] == b"g m-2"          # UDUNITS-2; carbon in the description
+    # DuckDB's parquet_kv_metadata (the reference: a reader that sees only the file's
+    # key-value metadata) finds the units, descriptions and time convention of every
+    # network dataset, as of a site's own tables (review 6: there were none)
+    import duckdb
+
+    for dataset_folder in batch.NETWORK_DATASETS.values():
+        part = (report.out / dataset_folder / "site=tower0" / "part-0.parquet").as_posix()
+        [(value,)] = duckdb.sql(f"SELECT value FROM parquet_kv_metadata('{part}') "
+                                "WHERE key = 'fluxpart'").fetchall()
+        meta = json.loads(value)
+        assert meta["columns"]["nee"]["unit"] == "g m-2"
+        assert meta["columns"]["latitude"]["unit"] == "degree_north"
+        assert "grams of carbon" in meta["columns"]["nee"]["description"]
+        assert meta["time_convention"].startswith("each stamp marks the start")
 
     frame = pd.read_parquet(folder)
     assert "site" in frame.columns and len(frame) == len(table) == len(report.network)
