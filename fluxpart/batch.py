@@ -767,6 +767,32 @@ def _use_fork_server() -> None:
     get_mp_context().set_forkserver_preload(list(_WORKER_PRELOAD))
 
 
+def dask_setup(worker) -> None:
+    """Make a worker of fluxpart's local cluster ignore Ctrl-C (Dask worker preload).
+
+    A terminal's Ctrl-C sends SIGINT to every process of the foreground process group,
+    the local workers included: each printed a 30-line KeyboardInterrupt traceback
+    before the batch's one line. The batch process alone answers it and closes the
+    cluster, which ends the workers.
+
+    Parameters
+    ----------
+    worker : distributed.Worker
+        The worker starting (unused).
+
+    References
+    ----------
+    POSIX, General Terminal Interface: INTR is sent to the foreground process group.
+    Dask ``distributed`` documentation, "Preloading": ``dask_setup(worker)``.
+    """
+    import signal
+
+    try:
+        signal.signal(signal.SIGINT, signal.SIG_IGN)
+    except ValueError:         # not the main thread of its process: nothing to protect
+        pass
+
+
 def _check_cluster_options(scheduler, workers) -> None:
     """Refuse a missing Dask or bad worker options (before the output folder is made)."""
     try:
@@ -813,6 +839,7 @@ def _client(scheduler, workers):
     try:
         with dask.config.set({"distributed.nanny.pre-spawn-environ.MALLOC_TRIM_THRESHOLD_":
                               None, "distributed.worker.profile.enabled": False,
+                              "distributed.worker.preload": ["fluxpart.batch"],  # dask_setup
                               "distributed.worker.multiprocessing-method": method}):
             if method == "forkserver":
                 _use_fork_server()

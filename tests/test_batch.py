@@ -719,12 +719,21 @@ def test_two_batches_write_their_network_tables_one_at_a_time(towers, tmp_path, 
     assert sorted(batch.read_network(out)["site"].unique()) == sorted(configs)
 
 
-def test_local_cluster_leaves_port_8787_to_others():
+def _ignores_ctrl_c() -> bool:
+    import signal
+
+    return signal.getsignal(signal.SIGINT) == signal.SIG_IGN
+
+
+def test_local_cluster_is_quiet_on_port_8787_and_ctrl_c():
     """Dask's scheduler serves HTTP (health, metrics) even without a dashboard, on port 8787
     unless told otherwise, and warns "Port 8787 is already in use" on stderr where another
     cluster or batch holds it (distributed 2026.8, ``ServerNode.start_http_server``; review
     6: two batches at once printed it). fluxpart's local cluster takes a free port on
-    127.0.0.1 and says nothing."""
+    127.0.0.1 and says nothing. Its workers ignore SIGINT, which a terminal's Ctrl-C sends
+    to the whole foreground process group (POSIX General Terminal Interface; review 6:
+    each worker printed a KeyboardInterrupt traceback, 67 lines on stderr, before the
+    batch's one line); the client process still takes Ctrl-C."""
     import socket
     import warnings
 
@@ -741,6 +750,8 @@ def test_local_cluster_leaves_port_8787_to_others():
             try:
                 server = cluster.scheduler.http_server
                 assert server.address == "127.0.0.1" and server.port != 8787
+                assert list(client.run(_ignores_ctrl_c).values()) == [True]
+                assert not _ignores_ctrl_c()
             finally:
                 client.close()
                 cluster.close()
