@@ -758,3 +758,20 @@ def test_local_cluster_is_quiet_on_port_8787_and_ctrl_c():
     finally:
         holder.close()
     assert not [w for w in caught if "already in use" in str(w.message)]
+
+
+def test_a_batch_output_folder_given_as_a_result_folder_says_what_to_give(tmp_path, capsys):
+    """Review 6: `fluxpart.load` or `report` on the batch output folder said only "is not a
+    fluxpart result folder"; the error names a site's folder in it and read_network (the
+    README's layout: out/<key>/ per site, network.json beside them)."""
+    import fluxpart
+
+    (tmp_path / batch.NETWORK_SEAL).write_text('{"complete": true}', encoding="utf-8")
+    with pytest.raises(InputFileError, match=r"not a fluxpart result folder; it is a batch "
+                       r"output folder: give one site's folder in it .*read_network"):
+        fluxpart.load(tmp_path)
+    assert main(["report", str(tmp_path), "--quiet"]) == 2
+    assert "it is a batch output folder" in capsys.readouterr().err
+    (tmp_path / batch.NETWORK_SEAL).unlink()
+    with pytest.raises(InputFileError, match=r"not a fluxpart result folder$"):
+        fluxpart.load(tmp_path)
