@@ -63,8 +63,8 @@ from .config import Config, suggest_key
 from .errors import ConfigError, FluxpartError, InputFileError, OutputError
 from .fingerprint import code_fingerprint
 from .manifest import CAUTION, MANIFEST_FILE, MANIFEST_FORMAT, library_versions, read_manifest
-from .resultdir import check_folder
-from .schema import units_for_table
+from .resultdir import check_folder, folder_lock
+from .schema import TIME_CONVENTION, units_for_table
 from .store import (
     atomic_write_bytes,
     file_sha256,
@@ -476,9 +476,11 @@ def _failure(common: dict, error: BaseException) -> SiteOutcome:
     kind = "input" if isinstance(error, FluxpartError) else "internal"
     text = str(error) or repr(error)
     trace = "" if kind == "input" else "".join(traceback.format_exception(error))
-    return SiteOutcome(status="failed", note=f"{type(error).__name__}: {text}",
-                       error=type(error).__name__, message=text, kind=kind, traceback=trace,
-                       **common)
+    # the first public class: a private subclass (the reader's _EmptyFileError) is no
+    # name a user can look up or catch
+    name = next(c.__name__ for c in type(error).__mro__ if not c.__name__.startswith("_"))
+    return SiteOutcome(status="failed", note=f"{name}: {text}", error=name, message=text,
+                       kind=kind, traceback=trace, **common)
 
 
 # --------------------------------------------------------------------------- network tables
@@ -507,8 +509,13 @@ def _unify(tables: list[pa.Table], name: str = "annual") -> list[pa.Table]:
     fields = [pa.field(f.name, f.type, metadata={b"unit": units[f.name][0].encode(),
                                                  b"description": units[f.name][1].encode()})
               for f in schema]
-    meta = {b"fluxpart": json.dumps({"table": NETWORK_DATASETS[name], "partitioning": "site"},
-                                    sort_keys=True).encode()}
+    # units and descriptions in the file's key-value metadata too, as in a site's own
+    # tables: DuckDB's parquet_kv_metadata and Polars' read_parquet_metadata see only these
+    columns = {f.name: {"unit": units[f.name][0], "description": units[f.name][1]}
+               for f in schema}
+    meta = {b"fluxpart": json.dumps({"table": NETWORK_DATASETS[name], "partitioning": "site",
+                                     "time_convention": TIME_CONVENTION, "columns": columns},
+                                    sort_keys=True, ensure_ascii=False).encode()}
     schema = pa.schema(fields, metadata=meta)
     out = []
     for table in tables:
@@ -541,7 +548,8 @@ def _write_network(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFrame]:
     First :data:`NETWORK_SEAL` is marked incomplete; the files follow; the seal is
     written last, naming each file's SHA-256 and each site folder's manifest seal,
     which :func:`read_network` checks. A batch stopped on the way leaves a seal
-    that says incomplete or does not match, never a silent mix.
+    that says incomplete or does not match, never a silent mix. Batches writing
+    into the same `out` take turns (the lock file ``.network.json.lock`` in `out`).
 
     Returns
     -------
@@ -550,6 +558,14 @@ def _write_network(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFrame]:
     failures : pandas.DataFrame
         The failures table.
     """
+    # Two batches into one output folder would otherwise swap their network folders in
+    # and out at the same moment: one failed, left a stray .old folder, or sealed the
+    # other's files (two threads, 20 rounds: one FileNotFoundError). One at a time.
+    with folder_lock(out / NETWORK_SEAL, remove=True):
+        return _write_network_locked(outcomes, out)
+
+
+def _write_network_locked(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFrame]:
     done = [o for o in outcomes if o.status != "failed"]
     atomic_write_bytes(out / NETWORK_SEAL, _seal_bytes({"format": _NETWORK_FORMAT,
                                                          "complete": False}))
@@ -751,21 +767,54 @@ def _use_fork_server() -> None:
     get_mp_context().set_forkserver_preload(list(_WORKER_PRELOAD))
 
 
-def _client(scheduler, workers):
-    """Return (client, cluster or None) for an address or a new local cluster."""
+def dask_setup(worker) -> None:
+    """Make a worker of fluxpart's local cluster ignore Ctrl-C (Dask worker preload).
+
+    A terminal's Ctrl-C sends SIGINT to every process of the foreground process group,
+    the local workers included: each printed a 30-line KeyboardInterrupt traceback
+    before the batch's one line. The batch process alone answers it and closes the
+    cluster, which ends the workers.
+
+    Parameters
+    ----------
+    worker : distributed.Worker
+        The worker starting (unused).
+
+    References
+    ----------
+    POSIX, General Terminal Interface: INTR is sent to the foreground process group.
+    Dask ``distributed`` documentation, "Preloading": ``dask_setup(worker)``.
+    """
+    import signal
+
     try:
-        import dask
-        from dask.distributed import Client, LocalCluster
+        signal.signal(signal.SIGINT, signal.SIG_IGN)
+    except ValueError:         # not the main thread of its process: nothing to protect
+        pass
+
+
+def _check_cluster_options(scheduler, workers) -> None:
+    """Refuse a missing Dask or bad worker options (before the output folder is made)."""
+    try:
+        import dask.distributed  # noqa: F401
     except ImportError:
         raise ConfigError("fluxpart batch needs Dask: install it with "
                           "pip install 'fluxpart[batch]' (dask[distributed])") from None
     if workers is not None and (not isinstance(workers, int) or isinstance(workers, bool)
                                 or workers < 1):
         raise ConfigError(f"--workers {workers!r}: expected a whole number >= 1")
+    if scheduler and workers is not None:
+        raise ConfigError("--workers applies to the local cluster only; with --scheduler "
+                          "the cluster's own workers are used")
+
+
+def _client(scheduler, workers):
+    """Return (client, cluster or None) for an address or a new local cluster."""
+    _check_cluster_options(scheduler, workers)
+    import dask
+    from dask.distributed import Client, LocalCluster
+
     if scheduler:
-        if workers is not None:
-            raise ConfigError("--workers applies to the local cluster only; with --scheduler "
-                              "the cluster's own workers are used")
         try:
             return Client(scheduler, timeout=_CONNECT_TIMEOUT_SECONDS), None
         except (OSError, TimeoutError, ValueError) as error:
@@ -790,12 +839,18 @@ def _client(scheduler, workers):
     try:
         with dask.config.set({"distributed.nanny.pre-spawn-environ.MALLOC_TRIM_THRESHOLD_":
                               None, "distributed.worker.profile.enabled": False,
+                              "distributed.worker.preload": ["fluxpart.batch"],  # dask_setup
                               "distributed.worker.multiprocessing-method": method}):
             if method == "forkserver":
                 _use_fork_server()
             cluster = LocalCluster(n_workers=workers or _DEFAULT_WORKERS, threads_per_worker=1,
                                    processes=True, host="127.0.0.1", dashboard_address=None,
-                                   silence_logs=logging.ERROR)
+                                   silence_logs=logging.ERROR,
+                                   # no dashboard, but the scheduler still serves HTTP
+                                   # (health, metrics): on a free port, not on 8787, which
+                                   # another cluster or batch may hold (Dask then warned
+                                   # "Port 8787 is already in use" on stderr)
+                                   scheduler_kwargs={"dashboard_address": "127.0.0.1:0"})
     finally:
         for name in set(os.environ) - set(saved):
             del os.environ[name]
@@ -864,6 +919,7 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     network = read_sites_file(sites_file)
     out = (Path(out) if out is not None else network.out).resolve()
     _check_out(out)
+    _check_cluster_options(scheduler, workers)   # a usage error leaves no new folder
     _make_writable_out(out)          # before the cluster starts and any site is computed
     _sweep_leftovers(out, started)
     client, cluster = _client(scheduler, workers)
@@ -1049,7 +1105,7 @@ def _summary(report: BatchReport) -> str:
                       formatters={"ustar_threshold": lambda v: f"{v:9.3f}"})]
     lines += [f"warning: {warning}" for warning in report.warnings]
     datasets = ", ".join(f"{folder}/" for folder in NETWORK_DATASETS.values())
-    lines += ["", f"Wrote {report.out}/ (one result folder per site, {datasets} "
+    lines += ["", f"Wrote {report.out}/ (one result folder per site, {datasets}, "
               f"{FAILURES_FILE})", f"Caution: {CAUTION}"]
     return "\n".join(lines)
 

@@ -268,8 +268,13 @@ def _read_manifest(directory: Path) -> dict:
         raise InputFileError(f"{str(directory)!r} is a file, not a result folder: give the "
                              "folder that fluxpart run or batch wrote (its --out)")
     if not path.is_file():
+        # a batch output folder holds result folders, sealed by network.json (batch.py)
+        batch = ("; it is a batch output folder: give one site's folder in it "
+                 f"({str(Path(directory) / '<site key>')!r}), or read its network tables "
+                 "with fluxpart.batch.read_network" if (directory / "network.json").is_file()
+                 else "")
         raise InputFileError(f"{str(path)!r} does not exist: {str(directory)!r} is not a "
-                             "fluxpart result folder")
+                             f"fluxpart result folder{batch}")
     try:
         manifest = json.loads(path.read_text(encoding="utf-8"))
     except (json.JSONDecodeError, UnicodeDecodeError) as error:

@@ -231,6 +231,37 @@ def load(directory) -> Result:
                   warnings=tuple(manifest["warnings"]), provenance=manifest["provenance"])
 
 
+def _config(config) -> Config:
+    """The settings given, or the published defaults; anything else is refused."""
+    if config is None:
+        return Config()
+    if not isinstance(config, Config):
+        raise ConfigError(f"config must be a fluxpart.Config, got {type(config).__name__}; "
+                          "build one with fluxpart.Config(seed=1, ...) or "
+                          "fluxpart.Config.from_toml(path)")
+    return config
+
+
+def _require_columns(frame: pd.DataFrame) -> None:
+    """Refuse a frame without the required columns, naming the columns it has."""
+    if isinstance(frame.columns, pd.MultiIndex):
+        raise MissingColumnError(f"the frame's column labels have {frame.columns.nlevels} "
+                                 "levels; give one level of canonical names (nee, rg, ...), "
+                                 "e.g. with frame.droplevel(1, axis=1)")
+    missing = [name for name in REQUIRED if name not in frame.columns]
+    if missing == ["vpd"] and "rh" in frame.columns:
+        raise MissingColumnError("column 'vpd' is missing; derive it from 'rh' and 'tair' with "
+                                 "fluxpart.variables.vpd_from_rh, or read the file with "
+                                 "fluxpart.read_config, which does so")
+    if missing:
+        given = [str(column) for column in frame.columns]
+        renames = [f"{column!r} -> {name!r}" for name in missing for column in given
+                   if column.strip().lower() == name]
+        hint = (f"; names are case-sensitive: rename {', '.join(renames)}" if renames else "")
+        raise MissingColumnError(f"required column(s) {', '.join(map(repr, missing))} missing; "
+                                 f"the frame has: {', '.join(given) or 'no columns'}{hint}")
+
+
 def _validate(frame: pd.DataFrame) -> int:
     """Check the canonical frame once; return its interval [minutes]."""
     if not isinstance(frame, pd.DataFrame):
@@ -241,14 +272,7 @@ def _validate(frame: pd.DataFrame) -> int:
     if frame.index.tz is not None:
         raise SpacingError(f"the frame's index carries the time zone {frame.index.tz}; use "
                            "tz-naive local standard time and give Site.utc_offset")
-    missing = [name for name in REQUIRED if name not in frame.columns]
-    if missing == ["vpd"] and "rh" in frame.columns:
-        raise MissingColumnError("column 'vpd' is missing; derive it from 'rh' and 'tair' with "
-                                 "fluxpart.variables.vpd_from_rh, or read the file with "
-                                 "fluxpart.read_config, which does so")
-    if missing:
-        raise MissingColumnError(f"required column(s) {', '.join(map(repr, missing))} missing; "
-                                 f"the frame has: {', '.join(map(str, frame.columns))}")
+    _require_columns(frame)
     for name in frame.columns:
         if not pd.api.types.is_numeric_dtype(frame[name]):
             raise FluxpartError(f"column {name!r} has dtype {frame[name].dtype}; expected numbers")
@@ -277,7 +301,8 @@ def _prepare(frame, site: Site) -> tuple:
 
     A tz-aware index is converted to the site's local standard time (UTC +
     ``site.utc_offset``, no daylight saving) and made tz-naive; columns that are not
-    canonical variables are left out (the caller's frame is not modified).
+    canonical variables are left out; numeric columns become float64 (missing values
+    and infinities NaN). The caller's frame is not modified.
     """
     notes = []
     if not isinstance(frame, pd.DataFrame):
@@ -287,11 +312,29 @@ def _prepare(frame, site: Site) -> tuple:
         notes.append(f"the index carried the time zone {frame.index.tz}; converted to local "
                      f"standard time UTC{site.utc_offset:+g} h (Site.utc_offset)")
         frame = frame.set_axis(frame.index.tz_convert(zone).tz_localize(None), axis=0)
+    _require_columns(frame)        # before other columns are left out: name them all
     unknown = [c for c in frame.columns if c not in VARIABLES]
     if unknown:
         notes.append(f"column(s) {', '.join(map(repr, map(str, unknown)))} are not canonical "
                      f"variables and were ignored (canonical: {', '.join(VARIABLES)})")
         frame = frame.drop(columns=unknown)
+    # float64, as the file reader gives them: float32, float16, nullable (Float64, Int64)
+    # or Arrow columns were otherwise echoed in the time series with their own type
+    # (a float16 rh written as Parquet halffloat), so the tables' schema followed the
+    # caller's dtypes; a missing value (pd.NA) becomes NaN
+    widen = {name: "float64" for name in frame.columns
+             if frame[name].dtype != np.float64 and pd.api.types.is_numeric_dtype(frame[name])}
+    if widen:
+        frame = frame.astype(widen)
+    # +-inf, as the file reader does, is missing: kept, it leaked NumPy's "divide by zero"
+    # warnings and stood in the time series beside finite filled values
+    infinite = {name: int(np.isinf(frame[name].to_numpy()).sum()) for name in frame.columns
+                if frame[name].dtype == np.float64}
+    infinite = {name: count for name, count in infinite.items() if count}
+    if infinite:
+        notes.append("infinite values read as missing: " + ", ".join(
+            f"{count} in {name!r}" for name, count in infinite.items()))
+        frame = frame.replace([np.inf, -np.inf], np.nan)
     return frame, notes
 
 
@@ -429,7 +472,7 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
     findings : list of fluxpart.preflight.Finding
         Conditions that make a stage fail (``fatal``) or fall back.
     """
-    config = Config() if config is None else config
+    config = _config(config)
     frame, _ = _prepare(frame, site)
     interval = _validate(frame)
     frame, edges = _budget_record(frame, config, interval)
@@ -479,7 +522,7 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     thresholds : pandas.DataFrame
         The u* table of :attr:`Result.ustar`.
     """
-    config = Config() if config is None else config
+    config = _config(config)
     frame, _ = _prepare(frame, site)
     interval = _validate(frame)
     frame, _ = _budget_record(frame, config, interval)
@@ -619,7 +662,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         ``nee_flag``) on a regular 30- or 60-minute DatetimeIndex of interval starts
         in local standard time; one or more years. Not modified. A tz-aware index
         is converted with ``site.utc_offset``; other columns are ignored (each with
-        a warning). A budget year at either end holding less than a day of records is
+        a warning); numeric columns of any dtype (float32, nullable, Arrow) are read
+        as float64, so the tables' column types do not depend on them, and infinite
+        values as missing (with a warning). A budget year at either end holding less than a day of records is
         left out, and up to a day absent at a year's edges is added as gaps
         (:func:`fluxpart.timestamps.budget_year_edges`; each with a warning).
     site : Site
@@ -642,7 +687,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     FluxpartError
         (a subclass) for bad input or settings, or too little data for a method.
     """
-    config = Config() if config is None else config
+    config = _config(config)
     if not isinstance(site, Site):
         raise ConfigError(f"site must be a fluxpart.Site, got {type(site).__name__}")
     frame, notes = _prepare(frame, site)

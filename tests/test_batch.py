@@ -157,11 +157,26 @@ def test_example_network_file_lists_the_example_sites():
     (["--workers", "2", "--scheduler", "tcp://127.0.0.1:9"], r"--workers applies to the local"),
 ])
 def test_bad_worker_options_exit_2(towers, tmp_path, capsys, extra, match):
-    """Worker options are checked before any cluster starts."""
+    """Worker options are checked before any cluster starts, and before the output folder
+    is made (review 6: each left an empty new folder behind)."""
     root, configs = towers
     sites = _network_file(tmp_path, [str(configs["tower0"])])
     assert main(["batch", str(sites), "--quiet", *extra]) == 2
     assert pd.Series([capsys.readouterr().err]).str.contains(match).all()
+    assert not (tmp_path / "network-output").exists()
+
+
+def test_missing_dask_is_one_error_line_and_no_folder(towers, tmp_path, capsys, monkeypatch):
+    """Without the batch extra: one ``error:`` line naming the install, exit 2, no output
+    folder (Python's import system: a ``None`` entry in ``sys.modules`` makes the import
+    raise ImportError, the state of an environment without Dask)."""
+    root, configs = towers
+    sites = _network_file(tmp_path, [str(configs["tower0"])])
+    monkeypatch.setitem(sys.modules, "dask.distributed", None)
+    assert main(["batch", str(sites), "--quiet"]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("error: fluxpart batch needs Dask") and err.count("\n") == 1
+    assert "fluxpart[batch]" in err and not (tmp_path / "network-output").exists()
 
 
 def test_unreachable_scheduler_is_a_clear_error(towers, tmp_path, monkeypatch):
@@ -184,6 +199,20 @@ def test_run_site_reports_failures_instead_of_raising(towers, tmp_path, monkeypa
                                                              "MissingColumnError")
     assert "co2_flux_nowhere" in outcome.message
     assert not (tmp_path / "out").exists()
+
+    # review 6: a header-only file's private error class (_EmptyFileError) stood in the
+    # failures table and on stderr; the public class the README documents is named
+    empty = tmp_path / "empty"
+    empty.mkdir()
+    config = empty / "empty.toml"
+    text = configs["tower0"].read_text(encoding="utf-8")
+    csv_name = text.split('path = "', 1)[1].split('"', 1)[0]
+    config.write_text(text, encoding="utf-8")
+    original = (configs["tower0"].parent / csv_name).read_text(encoding="utf-8")
+    (empty / csv_name).write_text(original.splitlines()[0] + "\n", encoding="utf-8")
+    outcome = batch.run_site("empty", config, tmp_path / "out" / "empty")
+    assert (outcome.kind, outcome.error) == ("input", "InputFileError")
+    assert outcome.note.startswith("InputFileError: ") and "no records" in outcome.message
 
     def explode(path):
         raise ZeroDivisionError("a fault inside")
@@ -242,6 +271,7 @@ def test_batch_is_byte_identical_to_fluxpart_run(towers, tmp_path, capsys):
     assert main(["batch", str(sites), "--quiet"]) == 0
     printed = capsys.readouterr().out
     assert "3 processed, 0 up to date (skipped), 0 failed" in printed
+    assert "network_daily/, failures.parquet)" in printed      # a list, commas between
     out = tmp_path / "network-output"
     for key, config in configs.items():
         single = tmp_path / "single" / key
@@ -376,6 +406,20 @@ def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster
     assert sorted(table["site"].astype(str).unique()) == sorted(configs)
     assert pq.read_schema(folder / "site=tower0" / "part-0.parquet").field(
         "nee").metadata[b"unit"] == b"g m-2"          # UDUNITS-2; carbon in the description
+    # DuckDB's parquet_kv_metadata (the reference: a reader that sees only the file's
+    # key-value metadata) finds the units, descriptions and time convention of every
+    # network dataset, as of a site's own tables (review 6: there were none)
+    import duckdb
+
+    for dataset_folder in batch.NETWORK_DATASETS.values():
+        part = (report.out / dataset_folder / "site=tower0" / "part-0.parquet").as_posix()
+        [(value,)] = duckdb.sql(f"SELECT value FROM parquet_kv_metadata('{part}') "
+                                "WHERE key = 'fluxpart'").fetchall()
+        meta = json.loads(value)
+        assert meta["columns"]["nee"]["unit"] == "g m-2"
+        assert meta["columns"]["latitude"]["unit"] == "degree_north"
+        assert "grams of carbon" in meta["columns"]["nee"]["description"]
+        assert meta["time_convention"].startswith("each stamp marks the start")
 
     frame = pd.read_parquet(folder)
     assert "site" in frame.columns and len(frame) == len(table) == len(report.network)
@@ -631,3 +675,103 @@ def test_network_tables_are_read_only_when_they_match_their_seal(towers, tmp_pat
     batch.run_batch(sites, scheduler=cluster.scheduler_address)
     assert (out / batch.NETWORK_SEAL).read_bytes() == intact          # rerun: the same seal
     pd.testing.assert_frame_equal(batch.read_network(out, "daily"), daily)
+
+
+def test_two_batches_write_their_network_tables_one_at_a_time(towers, tmp_path, monkeypatch):
+    """Two batches into one output folder (review 6: two threads writing the network tables
+    of the same sites, 20 rounds, failed once with FileNotFoundError between the two renames
+    of a folder swap and left a ``.network_daily.old.*`` folder). The writes take turns under
+    a lock file: never two swaps at once, no error, no leftover, the seal read back (POSIX
+    ``flock`` semantics: one holder per file; common practice of the filelock library)."""
+    import threading
+
+    root, configs = towers
+    out = tmp_path / "out"
+    outcomes = [batch.run_site(key, config, out / key) for key, config in configs.items()]
+    assert {o.status for o in outcomes} == {"written"}
+    inside, most, errors = [0], [0], []
+    original = batch._replace_folder
+
+    def slow_replace(staging, target):
+        inside[0] += 1
+        most[0] = max(most[0], inside[0])
+        time.sleep(0.1)
+        inside[0] -= 1
+        original(staging, target)
+
+    monkeypatch.setattr(batch, "_replace_folder", slow_replace)
+    start = threading.Barrier(2)
+
+    def write():
+        try:
+            start.wait()
+            batch._write_network(outcomes, out)
+        except Exception as error:  # noqa: BLE001  collected for the assertion
+            errors.append(error)
+
+    threads = [threading.Thread(target=write) for _ in range(2)]
+    for thread in threads:
+        thread.start()
+    for thread in threads:
+        thread.join()
+    assert errors == [] and most[0] == 1
+    assert sorted(p.name for p in out.iterdir() if p.name.startswith(".")) == []
+    assert sorted(batch.read_network(out)["site"].unique()) == sorted(configs)
+
+
+def _ignores_ctrl_c() -> bool:
+    import signal
+
+    return signal.getsignal(signal.SIGINT) == signal.SIG_IGN
+
+
+def test_local_cluster_is_quiet_on_port_8787_and_ctrl_c():
+    """Dask's scheduler serves HTTP (health, metrics) even without a dashboard, on port 8787
+    unless told otherwise, and warns "Port 8787 is already in use" on stderr where another
+    cluster or batch holds it (distributed 2026.8, ``ServerNode.start_http_server``; review
+    6: two batches at once printed it). fluxpart's local cluster takes a free port on
+    127.0.0.1 and says nothing. Its workers ignore SIGINT, which a terminal's Ctrl-C sends
+    to the whole foreground process group (POSIX General Terminal Interface; review 6:
+    each worker printed a KeyboardInterrupt traceback, 67 lines on stderr, before the
+    batch's one line); the client process still takes Ctrl-C."""
+    import socket
+    import warnings
+
+    holder = socket.socket()
+    try:
+        holder.bind(("127.0.0.1", 8787))
+        holder.listen()
+    except OSError:
+        pass                     # already taken by another process: the same condition
+    try:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            client, cluster = batch._client(None, 1)
+            try:
+                server = cluster.scheduler.http_server
+                assert server.address == "127.0.0.1" and server.port != 8787
+                assert list(client.run(_ignores_ctrl_c).values()) == [True]
+                assert not _ignores_ctrl_c()
+            finally:
+                client.close()
+                cluster.close()
+    finally:
+        holder.close()
+    assert not [w for w in caught if "already in use" in str(w.message)]
+
+
+def test_a_batch_output_folder_given_as_a_result_folder_says_what_to_give(tmp_path, capsys):
+    """Review 6: `fluxpart.load` or `report` on the batch output folder said only "is not a
+    fluxpart result folder"; the error names a site's folder in it and read_network (the
+    README's layout: out/<key>/ per site, network.json beside them)."""
+    import fluxpart
+
+    (tmp_path / batch.NETWORK_SEAL).write_text('{"complete": true}', encoding="utf-8")
+    with pytest.raises(InputFileError, match=r"not a fluxpart result folder; it is a batch "
+                       r"output folder: give one site's folder in it .*read_network"):
+        fluxpart.load(tmp_path)
+    assert main(["report", str(tmp_path), "--quiet"]) == 2
+    assert "it is a batch output folder" in capsys.readouterr().err
+    (tmp_path / batch.NETWORK_SEAL).unlink()
+    with pytest.raises(InputFileError, match=r"not a fluxpart result folder$"):
+        fluxpart.load(tmp_path)

@@ -228,6 +228,77 @@ def test_zoned_index_is_converted_and_extra_columns_ignored():
     assert len(repr(result)) < 200 and site.name in repr(result)
 
 
+def test_column_types_of_the_caller_do_not_reach_the_tables(tmp_path):
+    """Review 6: float32, float16, nullable (pandas ``Float64``/``Int64`` with ``pd.NA``) and
+    Arrow-backed columns were echoed in the time series with their own type (a float16 rh
+    written as Parquet halffloat). They are read as float64, as the file reader gives them,
+    so the written schema equals that of a float64 frame (pyarrow's schema, the reference);
+    the values are the float64 widening of the caller's (IEEE 754: float32 and float16
+    widen to float64 exactly)."""
+    import pyarrow.parquet as pq
+
+    frame, _ = demo.site_year(seed=0, interval_minutes=60)
+    site, config = demo.site(), Config(ustar_method="fixed", random_error_draws=20)
+    measured = ["nee", "rg", "tair", "vpd", "ustar", "tsoil", "rh"]
+    odd = frame.astype({"nee": "float32", "rg": "Float64", "tair": "double[pyarrow]",
+                        "rh": "float16"}).assign(nee_flag=frame["nee_flag"].astype("Int64"))
+    odd.loc[odd.index[5], "rg"] = pd.NA
+    widened = odd.astype({name: "float64" for name in measured}).assign(
+        nee_flag=frame["nee_flag"].astype(float))
+    process(widened, site, config).write(tmp_path / "plain")
+    process(odd, site, config).write(tmp_path / "odd")
+    plain = pq.read_table(tmp_path / "plain" / "timeseries.parquet")
+    found = pq.read_table(tmp_path / "odd" / "timeseries.parquet")
+    assert found.schema.equals(plain.schema, check_metadata=True)
+    assert found.equals(plain)
+    assert odd["rh"].dtype == np.float16                       # the caller's frame untouched
+
+
+def test_frames_with_other_names_or_settings_are_refused_naming_the_fix():
+    """Review 6, each once a traceback or an empty listing: the columns a frame has are
+    named when required ones are missing (they were dropped as non-canonical first, so
+    ``NEE``..``USTAR`` gave "the frame has: " and nothing), letter case named as the fix;
+    two-level column labels refused as such; a dict as config is a ConfigError, not an
+    AttributeError (pandas ``DataFrame.rename(columns=str.upper)`` and ``MultiIndex`` are
+    the reference frames; common practice)."""
+    frame, _ = demo.site_year(seed=0, interval_minutes=60)
+    site = demo.site()
+    with pytest.raises(MissingColumnError, match=r"'nee', 'rg', 'tair', 'vpd', 'ustar' missing; "
+                       r"the frame has: NEE, RG, TAIR.*case-sensitive: rename 'NEE' -> 'nee'"):
+        process(frame.rename(columns=str.upper), site)
+    with pytest.raises(MissingColumnError, match=r"'rg' missing; the frame has: .*soil_water"):
+        process(frame.drop(columns="rg").assign(soil_water=0.3), site)
+    two_levels = frame.set_axis(pd.MultiIndex.from_product([frame.columns, ["raw"]]), axis=1)
+    with pytest.raises(MissingColumnError, match="2 levels.*droplevel"):
+        process(two_levels, site)
+    with pytest.raises(ConfigError, match="config must be a fluxpart.Config, got dict"):
+        process(frame, site, {"seed": 1})
+
+
+def test_infinite_values_are_missing_as_from_a_file():
+    """Review 6: +-inf in a frame (a division by zero upstream) leaked NumPy's "divide by
+    zero" RuntimeWarnings and stood in the written time series; they are read as missing,
+    as the file reader reads them, and counted in a warning. IEEE 754: inf is not a
+    measurement; the same frame with NaN there is the reference."""
+    import warnings
+
+    frame, _ = demo.site_year(seed=0, interval_minutes=60)
+    site, config = demo.site(), Config(ustar_method="fixed", random_error_draws=20)
+    every = np.arange(len(frame))
+    infinite = frame.assign(nee=frame["nee"].mask(every % 50 == 0, np.inf),
+                            tair=frame["tair"].mask(every % 70 == 0, -np.inf))
+    missing = infinite.replace([np.inf, -np.inf], np.nan)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        result = process(infinite, site, config)
+    assert not [w for w in caught if issubclass(w.category, RuntimeWarning)]
+    assert any("infinite values read as missing: 176 in 'nee', 126 in 'tair'" in text
+               for text in result.warnings)
+    reference = process(missing, site, config)
+    pd.testing.assert_frame_equal(result.timeseries, reference.timeseries)
+    pd.testing.assert_frame_equal(result.annual, reference.annual)
+
+
 def test_too_little_night_data_fails_clearly_unless_a_fallback_is_chosen():
     """A year without usable night NEE fails naming e0_fallback; the opt-in fall-back is flagged."""
     frame, _ = demo.site_year(seed=0)
