@@ -927,20 +927,25 @@ def _storage_release(outcomes, run_warnings, screened, rerun, ustar, threshold, 
     excluded records (bool) and the warnings that name the release.
     """
     released = np.zeros(len(screened), dtype=bool)
+    marked = np.zeros(len(screened), dtype=bool)   # the mornings excluded, measured or not
     notes, years = [], None
     for stage, share in enumerate(storage_check.CALM_SHARES):
         day = outcomes["central"][4]
+        # the mornings an earlier stage excluded no longer carry their release: a later
+        # stage's excess is counted over the others only
         rows = [row for row in storage_check.morning_release(
                     outcomes["central"][1], ustar, threshold, is_night, day.reco - day.gpp,
-                    year_keys, interval, share)
+                    year_keys, interval, share, excluded=marked)
                 if years is None or row["year"] in years]
         flagged = [row["year"] for row in rows if row["flagged"]]
         if not flagged or mode != "exclude":
             notes.extend(storage_check.release_warnings(rows, 0, stage))
             break
         nee = screened["nee"].to_numpy(dtype=float)
-        more = storage_check.release_mornings(ustar, threshold, is_night, year_keys, flagged,
-                                              interval, share) & np.isfinite(nee)
+        mornings = storage_check.release_mornings(ustar, threshold, is_night, year_keys,
+                                                  flagged, interval, share)
+        marked |= mornings
+        more = mornings & np.isfinite(nee)
         released |= more
         screened = screened.assign(nee=np.where(more, np.nan, nee))
         outcomes, run_warnings = rerun(screened)

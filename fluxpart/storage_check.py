@@ -56,7 +56,7 @@ MIN_ANNUAL_EXCESS = 10.0
 
 
 def morning_release(nee_measured, ustar, threshold, is_night, nee_model, year_keys,
-                    interval_minutes, calm_share=CALM_SHARE) -> list[dict]:
+                    interval_minutes, calm_share=CALM_SHARE, excluded=None) -> list[dict]:
     """Excess NEE of the mornings after calm nights over those after turbulent nights.
 
     Parameters
@@ -80,6 +80,10 @@ def morning_release(nee_measured, ustar, threshold, is_night, nee_model, year_ke
         Share of a night's records with u* below the threshold that makes it calm;
         :data:`CALM_SHARE` (0.5) by default, 0 for any record (the others then are
         the nights with none).
+    excluded : array_like of bool, optional
+        Records an earlier stage already excluded as mornings after calm nights
+        (:func:`release_mornings`, measured or not); left out of ``annual_excess``,
+        since their release has left the budget. None: no record.
 
     Returns
     -------
@@ -87,9 +91,10 @@ def morning_release(nee_measured, ustar, threshold, is_night, nee_model, year_ke
         One per budget year with mornings of both kinds: ``year``, ``calm_mornings``,
         ``other_mornings``, ``excess`` (mean residual after calm nights minus after the
         others [µmol m-2 s-1]), ``z`` (excess over its standard error), ``annual_excess``
-        (the excess over every morning record after a calm night, measured or filled
-        [g C m-2]; a lower bound of the release: mornings after nights counted as
-        turbulent release some too, and the daytime fit takes up part of it) and
+        (the excess over every morning record after a calm night, measured or filled,
+        that is not `excluded` [g C m-2]; a lower bound of the release: mornings after
+        nights counted as turbulent release some too, and the daytime fit takes up part
+        of it) and
         ``flagged`` (z ≥ :data:`MIN_Z` and annual excess ≥ :data:`MIN_ANNUAL_EXCESS`).
 
     Notes
@@ -109,6 +114,8 @@ def morning_release(nee_measured, ustar, threshold, is_night, nee_model, year_ke
     night = np.asarray(is_night, dtype=bool)
     residual = nee - np.asarray(nee_model, dtype=float)
     years = np.asarray(year_keys)
+    counted = (np.ones(nee.size, dtype=bool) if excluded is None
+               else ~np.asarray(excluded, dtype=bool))
     per_morning = max(1, int(round(MORNING_HOURS * 60 / int(interval_minutes))))
     rows = {}
     for end, morning, calm in _nights_and_mornings(ustar, threshold, night, per_morning,
@@ -117,7 +124,7 @@ def morning_release(nee_measured, ustar, threshold, is_night, nee_model, year_ke
         year = years[end]
         entry = rows.setdefault(year, {"calm": [], "other": [], "calm_records": 0})
         if calm:
-            entry["calm_records"] += morning.size
+            entry["calm_records"] += int(counted[morning].sum())
         if kept.size >= MIN_MORNING_RECORDS:
             entry["calm" if calm else "other"].append(float(residual[kept].mean()))
     out = []

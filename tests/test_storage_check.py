@@ -160,3 +160,24 @@ def test_a_release_after_partly_calm_nights_is_excluded_by_the_follow_up_stage()
         assert bool(follow_up) == (mode == "exclude")
     assert errors["warn"] > 50.0
     assert abs(errors["exclude"]) < 0.3 * errors["warn"]
+
+
+def test_mornings_an_earlier_stage_excluded_do_not_count_in_the_annual_excess():
+    """Design property (the follow-up stage's "at least about ... g C m-2"): the excess of
+    the mornings still measured is counted over the morning records still carrying it, not
+    over those an earlier stage already excluded and refilled. Mass conversion 1 µmol m-2
+    s-1 for 30 min = 1800 s x 12.011e-6 g C (IUPAC standard atomic weight of carbon (m))."""
+    index, nee, ustar, threshold, night, model = _site_year(release=3.0)
+    hour = (index.hour + index.minute / 60.0).to_numpy()
+    day_number = (index - index[0]).days.to_numpy() + np.where(hour >= 20, 1, 0)
+    after_calm = ~night & (hour < 9) & ((day_number % 3) == 0)
+    excluded = after_calm & (day_number % 2 == 0)        # half of them excluded before
+    nee = np.where(excluded, np.nan, nee)
+    whole, rest = (storage_check.morning_release(nee, ustar, threshold, night, model,
+                                                 index.year, 30, excluded=mask)[0]
+                   for mask in (None, excluded))
+    assert whole["excess"] == rest["excess"] and whole["z"] == rest["z"]
+    grams = 1800 * 12.011e-6
+    assert np.isclose(whole["annual_excess"], whole["excess"] * after_calm.sum() * grams)
+    assert np.isclose(rest["annual_excess"],
+                      rest["excess"] * (after_calm & ~excluded).sum() * grams)
