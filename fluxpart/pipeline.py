@@ -518,7 +518,8 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     Returns
     -------
     counts : pandas.Series
-        Records per screening reason (``kept``, ``missing``, ``out_of_range``, ...).
+        Records per screening reason (``kept``, ``missing``, ``out_of_range``, ...),
+        without the two that follow the u* threshold (``low_ustar``, ``morning_release``).
     thresholds : pandas.DataFrame
         The u* table of :attr:`Result.ustar`.
     """
@@ -528,7 +529,9 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     frame, _ = _budget_record(frame, config, interval)
     _, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     table, _, _, _ = _ustar_thresholds(frame, screens.screened, is_night, site, config)
-    return screens.counts.drop(labels=["low_ustar"], errors="ignore"), table
+    # the reasons decided after the u* threshold (low u*, mornings after calm nights) are
+    # not known here: a count of 0 would read as none
+    return screens.counts.drop(labels=["low_ustar", "morning_release"], errors="ignore"), table
 
 
 def _per_record(index, per_year: pd.Series) -> np.ndarray:

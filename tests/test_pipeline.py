@@ -429,3 +429,15 @@ def test_daytime_method_without_its_own_e0_falls_back_to_the_nighttime_e0_with_a
     night_e0 = result.timeseries["e0_nighttime"].to_numpy()
     assert np.allclose(table["e0"], np.median(night_e0[np.isfinite(night_e0)]))
     assert np.isfinite(result.annual["gpp_daytime"]).all()
+
+
+def test_screening_summary_lists_no_reason_it_cannot_decide():
+    """Design property (``fluxpart check``: records per reason before the u* filter): the
+    reasons decided only after the u* threshold, low u* and the mornings after calm nights
+    (excluded by ``process`` where their release shows), are left out, not printed as 0;
+    the reasons listed add up to the records."""
+    frame, _ = demo.site_year(seed=5)
+    counts, _ = fluxpart.pipeline.screening_summary(frame, demo.site(),
+                                                    Config(ustar_bootstrap_draws=0))
+    assert "low_ustar" not in counts.index and "morning_release" not in counts.index
+    assert int(counts.sum()) == len(frame)
