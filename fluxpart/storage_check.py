@@ -242,8 +242,8 @@ def release_warnings(rows, excluded: int = 0, stage: int = 0) -> list[str]:
                 f"({row['calm_mornings']} and {row['other_mornings']} mornings, "
                 f"{row['z']:.1f} standard errors), at least about "
                 f"{row['annual_excess']:+.0f} g C m-2 in the year: their "
-                f"{MORNING_HOURS:.0f} h after sunrise ({excluded} records) were excluded "
-                "and gap-filled too"
+                f"{MORNING_HOURS:.0f} h after sunrise ({excluded} records in all flagged "
+                "years) were excluded and gap-filled too"
                 for row in rows if row["flagged"]]
     if excluded:
         outcome = (f"The day records of the {MORNING_HOURS:.0f} h after each calm night "

@@ -181,3 +181,16 @@ def test_mornings_an_earlier_stage_excluded_do_not_count_in_the_annual_excess():
     assert np.isclose(whole["annual_excess"], whole["excess"] * after_calm.sum() * grams)
     assert np.isclose(rest["annual_excess"],
                       rest["excess"] * (after_calm & ~excluded).sum() * grams)
+
+
+def test_each_years_warning_names_the_excluded_count_as_the_total_of_all_years():
+    """Design property (warnings true to what happened): the records excluded are counted
+    over all flagged years at once, so a year's warning of either stage must say so rather
+    than present the total as its own (a two-year record gives one message a year)."""
+    row = {"calm_mornings": 100, "other_mornings": 20, "excess": 1.0, "z": 4.0,
+           "annual_excess": 30.0, "flagged": True}
+    rows = [{**row, "year": 2021}, {**row, "year": 2022}]
+    for stage in (0, 1):
+        messages = storage_check.release_warnings(rows, excluded=560, stage=stage)
+        assert len(messages) == 2
+        assert all("560" in text and "in all flagged years" in text for text in messages)
