@@ -3,7 +3,7 @@
 For each calendar year :func:`audit_trail` counts the records present, how many
 the screening kept and how many each reason rejected (in the order of
 :data:`fluxpart.screening.REASON_CODES`: missing, out of range, site flag,
-spike, low u*), how the NEE that went into the budget came about (measured, or
+spike, low u*, morning after a calm night), how the NEE that went into the budget came about (measured, or
 filled with quality A, B or C, or left unfilled), and how much of the gross
 exchange Σ|NEE| came from measured and from filled records. It becomes the
 ``audit`` table of a result folder, beside the manifest that records the input,
