@@ -744,9 +744,6 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     warnings.extend(ustar_seasonal.contrast_warnings(contrast, config.ustar_distinct_seasons))
     temperature, choice = _chosen_temperature(temperature, frame.index, screened, is_night,
                                               runs["central"], config)
-    arguments = (frame, screened, filled_drivers, conditions, is_night)
-    # one after another: in two threads the runs cost ~12 % more CPU and ~16 MB more
-    # memory for no gain in wall time (GIL-bound); sites run in parallel in `batch`
     # the choice fitted each candidate on the central run's measured NEE: its fits are
     # reused where the measured temperature is the same series
     delay = 0 if choice is None else choice.delay_records
@@ -757,18 +754,21 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                           equal_nan=True)
         or name == temperature}
     year_keys = timestamps.budget_year_numbers(frame.index, config.year_start)
-    run_warnings = []
-    outcomes = _threshold_runs(arguments, runs, temperature, config, night_fits.get(temperature),
-                               delay, run_warnings, step)
-    # the release of CO2 stored on calm nights, seen in the mornings after them
-    # (storage_check); where it shows, those mornings are excluded and the runs redone
-    def rerun(screened_now):
+
+    def all_runs(screened_now, report=lambda label: None):
+        """The u* runs on `screened_now` and their warnings (progress only the first time)."""
+        # one after another: in two threads the runs cost ~12 % more CPU and ~16 MB more
+        # memory for no gain in wall time (GIL-bound); sites run in parallel in `batch`
         notes = []
         return _threshold_runs((frame, screened_now, filled_drivers, conditions, is_night),
                                runs, temperature, config, night_fits.get(temperature), delay,
-                               notes, lambda label: None), notes
+                               notes, report), notes
+
+    outcomes, run_warnings = all_runs(screened, step)
+    # the release of CO2 stored on calm nights, seen in the mornings after them
+    # (storage_check); where it shows, those mornings are excluded and the runs redone
     outcomes, run_warnings, screened, released, release_notes = _storage_release(
-        outcomes, run_warnings, screened, rerun, frame["ustar"].to_numpy(dtype=float),
+        outcomes, run_warnings, screened, all_runs, frame["ustar"].to_numpy(dtype=float),
         runs["central"], is_night, year_keys, interval, config.storage_release)
     warnings.extend(run_warnings)
     warnings.extend(release_notes)
@@ -926,8 +926,9 @@ def _storage_release(outcomes, run_warnings, screened, rerun, ustar, threshold, 
     mornings after such nights are compared with the others
     (:func:`fluxpart.storage_check.morning_release`); where the excess is flagged and
     `mode` is ``"exclude"``, they are excluded from the measured NEE and ``rerun(screened)``
-    redoes the u* runs. Returns the outcomes and their warnings, the screened record, the
-    excluded records (bool) and the warnings that name the release.
+    redoes the u* runs (returning their outcomes and warnings). Returns the outcomes and
+    their warnings, the screened record, the excluded records (bool) and the warnings
+    that name the release.
     """
     released = np.zeros(len(screened), dtype=bool)
     marked = np.zeros(len(screened), dtype=bool)   # the mornings excluded, measured or not

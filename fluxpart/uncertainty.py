@@ -903,6 +903,7 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
     long_real = np.zeros(n, dtype=bool)
     for gap in long_gaps:
         long_real[real_starts[gap]:real_starts[gap] + real_lengths[gap]] = True
+    day_count = -(-n // int(per_day)) if records_per_day else 0    # days, the last cut
     plan = [(every_gap, False)] * int(rounds)
     if long_gaps.size:
         plan += [(long_gaps, True)] * int(rounds)
@@ -918,7 +919,6 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
             # on a random day, at its real gap's time of day; where those hours hold too few
             # measured records for the round's share, the rest at random starts
             if records_per_day and batches <= _TIME_OF_DAY_BATCHES:
-                day_count = -(-n // int(per_day))
                 starts = (rng.integers(0, day_count, size=draws) * int(per_day)
                           + real_starts[gaps] % int(per_day))
             else:
