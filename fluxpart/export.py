@@ -246,7 +246,7 @@ def to_xarray(result):
         grams = daily[name].to_numpy(dtype=float)
         text = _FLUXES[name][1]
         mean = {"long_name": f"daily mean of {text}", "units": "kg m-2 s-1",
-                "cell_methods": "day: mean (over the records present)"}
+                "cell_methods": "day: mean (comment: over the records present)"}
         if name.startswith("gpp"):
             mean["standard_name"] = STANDARD_NAMES["gpp"]
         variables[f"{name}_daily_mean"] = ("day", grams * 1e-3 / seconds, mean)

@@ -68,6 +68,10 @@ def test_time_is_utc_with_bounds_and_daily_sums_agree(exported):
                                result.daily["nee"].to_numpy(dtype=float), rtol=1e-12)
     assert dataset["nee"].attrs["cell_methods"] == "time: mean"
     assert dataset["nee_daily_sum"].attrs["cell_methods"] == "day: sum"
+    # free text after a method goes in parentheses as "(comment: ...)": CF conventions
+    # 1.8, section 7.3 (m)
+    method = dataset["nee_daily_mean"].attrs["cell_methods"]
+    assert method.startswith("day: mean (comment: ") and method.endswith(")")
 
 
 def test_flags_explain_themselves(exported):
