@@ -932,7 +932,10 @@ def _storage_release(outcomes, run_warnings, screened, rerun, ustar, threshold, 
     """
     released = np.zeros(len(screened), dtype=bool)
     marked = np.zeros(len(screened), dtype=bool)   # the mornings excluded, measured or not
-    notes, years = [], None
+    day = outcomes["central"][4]
+    notes = storage_check.unchecked_warnings(storage_check.unchecked_years(
+        outcomes["central"][1], day.reco - day.gpp, is_night, year_keys))
+    years = None
     for stage, share in enumerate(storage_check.CALM_SHARES):
         day = outcomes["central"][4]
         # the mornings an earlier stage excluded no longer carry their release: a later

@@ -29,11 +29,13 @@ u* filter) (m).
 from __future__ import annotations
 
 import numpy as np
+import pandas as pd
 
 from . import units
 from .uncertainty import gap_runs
 
-__all__ = ["MORNING_HOURS", "morning_release", "release_mornings", "release_warnings"]
+__all__ = ["MORNING_HOURS", "morning_release", "release_mornings", "release_warnings",
+           "unchecked_warnings", "unchecked_years"]
 
 #: Hours after the end of a night that count as its morning: the release of stored CO2
 #: takes the first hours of daytime mixing (common practice (m)).
@@ -225,6 +227,31 @@ def release_mornings(ustar, threshold, is_night, year_keys, years, interval_minu
         if calm and keys[end] in chosen:
             marked[morning] = True
     return marked
+
+
+def unchecked_years(nee_measured, nee_model, is_night, year_keys) -> list:
+    """Budget years with measured day NEE but no fitted daytime NEE to compare it with.
+
+    :func:`morning_release` compares each morning's measured NEE with the daytime
+    method's fitted NEE; where that fit is missing on every measured day record of a
+    year (the daytime method left the whole year unfitted), the year cannot be checked
+    and would pass without a word. Returns those years in order of appearance.
+    """
+    keys = np.asarray(year_keys)
+    day = ~np.asarray(is_night, dtype=bool)
+    measured = day & np.isfinite(np.asarray(nee_measured, dtype=float))
+    modelled = measured & np.isfinite(np.asarray(nee_model, dtype=float))
+    years = pd.unique(keys[measured])
+    checked = set(pd.unique(keys[modelled]).tolist())
+    return [year for year in years.tolist() if year not in checked]
+
+
+def unchecked_warnings(years) -> list[str]:
+    """One warning per budget year that :func:`morning_release` could not check."""
+    return [f"{year}: the mornings after calm nights could not be checked for a release of "
+            "CO2 stored below the sensor (the daytime method fitted no day of the year), so "
+            "a missing storage term would pass unnoticed there; check that NEE includes "
+            "storage ([input.columns] storage)" for year in years]
 
 
 def release_warnings(rows, excluded: int = 0, stage: int = 0) -> list[str]:

@@ -194,3 +194,18 @@ def test_each_years_warning_names_the_excluded_count_as_the_total_of_all_years()
         messages = storage_check.release_warnings(rows, excluded=560, stage=stage)
         assert len(messages) == 2
         assert all("560" in text and "in all flagged years" in text for text in messages)
+
+
+def test_a_year_without_a_daytime_fit_is_named_as_unchecked():
+    """A year whose daytime fit is missing on every day record cannot be compared, so it is
+    named rather than passed in silence (review, 0.15.0); a year with a fit is not."""
+    index, nee, ustar, threshold, night, model = _site_year(release=3.0)
+    years = np.where(index < pd.Timestamp("2021-07-01"), 2021, 2022)   # two budget years
+    unfitted = np.where(years == 2022, np.nan, model)
+    assert storage_check.unchecked_years(nee, unfitted, night, years) == [2022]
+    rows = storage_check.morning_release(nee, ustar, threshold, night, unfitted, years, 30)
+    assert [row["year"] for row in rows] == [2021]        # the comparison skips 2022
+    [message] = storage_check.unchecked_warnings([2022])
+    assert message.startswith("2022: ") and "storage" in message
+    assert storage_check.unchecked_years(nee, np.where(night, np.nan, model), night,
+                                         years) == []      # night-only gaps in the fit
