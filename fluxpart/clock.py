@@ -558,7 +558,13 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
     present = np.isfinite(rg_matrix)
     good_day = present.sum(axis=1) >= 0.8 * rg_matrix.shape[1]
     month_of_day = days.to_period("M").start_time
-    masks = [(month_of_day == start) & good_day for start in usable.index]
+    # the good days of each usable month, month after month (each month's mean course
+    # from one slice of them)
+    month_days = [np.flatnonzero((month_of_day == start) & good_day) for start in usable.index]
+    sizes = np.array([days_of.size for days_of in month_days])
+    rows = np.concatenate(month_days)
+    starts = np.concatenate([[0], np.cumsum(sizes)[:-1]])
+    filled = np.flatnonzero(sizes)                    # the months with good days
     rg_width = usable["daylength_rg"].to_numpy()
 
     sun = interval_sun(index, longitude, utc_offset, interval)    # the same at every latitude
@@ -567,9 +573,16 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
         """Standard deviation over the usable months of Rg's minus the sun's width [min]."""
         matrix = np.full(rg_matrix.shape, np.nan)
         matrix[layout] = potential_at_latitude(sun, candidate)
-        widths = np.array([_crossings(np.nanmean(np.where(present[m], matrix[m], np.nan),
-                                                 axis=0), interval, EDGE_LEVEL)[1]
-                           for m in masks])
+        widths = np.full(len(month_days), np.nan)      # a month without good days: NaN
+        values = np.where(present[rows], matrix[rows], np.nan)
+        missing = np.isnan(values)
+        values[missing] = 0.0
+        for month in filled:                          # np.nanmean of the month's days
+            days_of = slice(starts[month], starts[month] + sizes[month])
+            with np.errstate(divide="ignore", invalid="ignore"):     # a slot never present
+                mean = np.sum(values[days_of], axis=0) \
+                    / np.sum(~missing[days_of], axis=0, dtype=np.intp)
+            widths[month] = _crossings(mean, interval, EDGE_LEVEL)[1]
         off = rg_width - widths
         return float(np.std(off)) if np.isfinite(off).sum() >= MIN_LATITUDE_MONTHS \
             and np.isfinite(off).all() else np.inf
