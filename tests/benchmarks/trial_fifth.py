@@ -108,7 +108,8 @@ a units line, date and time columns and 24:00; ISO stamps with a +02:00 offset, 
 in K and RH as a fraction (VPD derived); a tab file with middle stamps, "NA" and PPFD; end
 stamps in UTC with a trailing Z and the outage rows absent; civil time with daylight saving in
 the southern hemisphere; a whitespace file with a title, a units line and year / day-of-year /
-integer hhmm columns. 30- and 60-min records; sites from 38 deg S to 61 deg N.
+integer hhmm columns. 30- and 60-min records, leap years 2020 and 2024; sites from 38 deg S
+to 61 deg N.
 
 Scores: error in g C m-2 and %, whether the stated 95 % interval holds the truth, |error| /
 sigma with sigma = half-width / 1.96, the u* threshold found against the planted one.
@@ -238,6 +239,10 @@ RUNS = {
                cuts=(240, 300), seed=510),
     "T1": dict(MAIZE, start="2023-01-01", years=1, step=30, year_start="01-01",
                drought=(190, 222), seed=511),
+    "T2": dict(MAIZE, start="2024-01-01", years=1, step=60, year_start="01-01",
+               outage=(196, 214), seed=512),
+    "W2": dict(WHEAT, start="2023-01-01", years=1, step=30, year_start="01-01",
+               outage=(20, 36), seed=513),
 }
 
 
@@ -752,7 +757,7 @@ def write_layout(frame: pd.DataFrame, spec: dict, folder: Path) -> Path:
         text = table.round(4).fillna(-9999).to_string(index=False)
         lines = text.splitlines()
         path = folder / "brannock.dat"
-        path.write_text("Brannock maize tower half-hourly fluxes\n" + lines[0] + "\n"
+        path.write_text("Brannock maize tower fluxes\n" + lines[0] + "\n"
                         + "year doy hhmm umol/m2/s W/m2 C hPa m/s C - -\n"
                         + "\n".join(lines[1:]) + "\n", encoding="utf-8")
         body = ('[input]\npath = "brannock.dat"\nrows_before_header = 1\n'
