@@ -183,8 +183,9 @@ class ReadReport:
         What was done to stamps: ``hour_24`` (read as midnight of the next day),
         ``utc_offset`` (converted from stamps carrying an offset), ``daylight_saving``
         (moved from civil to standard time), ``time_zone`` (the zone, if any);
-        ``rounded_to_minute`` and ``date_only`` (midnight written as the date alone)
-        only where they happened.
+        ``rounded_to_minute``, ``date_only`` (midnight written as the date alone) and
+        ``utc_zone`` (stamps of a UTC zone moved to the site's offset) only where they
+        happened.
     nonfinite_cells : dict
         Canonical name -> cells holding an infinity or a number of magnitude
         :data:`ABSURD_MAGNITUDE` or more, read as missing.
@@ -1701,6 +1702,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         "missing_cells": missing_cells, "nonfinite_cells": nonfinite,
         "conversions": {"hour_24": parsed.hour_24, "utc_offset": parsed.offset_converted,
                         "daylight_saving": parsed.daylight_saving,
+                        **({"utc_zone": parsed.utc_zone} if parsed.utc_zone else {}),
                         # only where it happened: earlier manifests have no such key
                         **({"rounded_to_minute": parsed.rounded_to_minute}
                            if parsed.rounded_to_minute else {}),
@@ -2194,7 +2196,10 @@ def _conversion_text(conversions: dict) -> str:
     if conversions.get("date_only"):
         parts.append(f"{conversions['date_only']} stamp(s) written as the date alone read "
                      "as midnight")
-    if conversions.get("time_zone"):
+    if conversions.get("utc_zone"):
+        parts.append(f"{conversions['utc_zone']} stamp(s) in {conversions.get('time_zone')} "
+                     "moved to local standard time")
+    if conversions.get("time_zone") and not conversions.get("utc_zone"):
         parts.append(f"civil time of {conversions['time_zone']}: "
                      f"{conversions.get('daylight_saving', 0)} daylight-saving stamp(s) moved "
                      "back one hour")

@@ -80,6 +80,9 @@ class ParsedStamps:
         Stamps that carried a UTC offset and were converted.
     daylight_saving : int
         Stamps read as daylight-saving civil time and moved back to standard time.
+    utc_zone : int
+        Stamps read in a UTC zone (``[input] time_zone = "UTC"``, a logger kept on UTC)
+        and moved to the site's local standard time (0 at a site of UTC+0).
     rounded_to_minute : int
         Stamps a few seconds off a whole minute (logger clock jitter, or a
         "minus one second" end stamp) rounded to it.
@@ -92,6 +95,7 @@ class ParsedStamps:
     hour_24: int = 0
     offset_converted: int = 0
     daylight_saving: int = 0
+    utc_zone: int = 0
     rounded_to_minute: int = 0
     date_only: int = 0
 
@@ -557,12 +561,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         index = (index.tz_convert("UTC").tz_localize(None)
                  + pd.Timedelta(hours=float(utc_offset)))
         offset_converted = len(index)
-    daylight = 0
+    daylight = from_utc = 0
     if time_zone is not None:
-        index, daylight = _civil_to_standard(index, text, time_zone, utc_offset, time_columns,
-                                             source, lines)
+        index, daylight, from_utc = _civil_to_standard(index, text, time_zone, utc_offset,
+                                                       time_columns, source, lines)
     return ParsedStamps(stamps=pd.DatetimeIndex(index), hour_24=int(is_24.sum()),
                         offset_converted=offset_converted, daylight_saving=daylight,
+                        utc_zone=from_utc,
                         rounded_to_minute=rounded, date_only=int(date_only.sum()))
 
 
@@ -625,7 +630,11 @@ def check_time_zone(time_zone, utc_offset: float, when=None) -> str:
 
 def _civil_to_standard(index: pd.DatetimeIndex, text: pd.Series, time_zone: str, utc_offset,
                        time_columns: tuple, source: str, lines: np.ndarray):
-    """Civil (daylight-saving) stamps of `time_zone` -> local standard time."""
+    """Civil (daylight-saving) stamps of `time_zone` -> local standard time.
+
+    Returns the standard-time stamps, the count of daylight-saving stamps among them and
+    the count of stamps moved from a UTC zone to the site's offset.
+    """
     if utc_offset is None:
         raise ConfigError("[input] time_zone needs [site] utc_offset (the zone's standard "
                           "offset)")
@@ -643,9 +652,18 @@ def _civil_to_standard(index: pd.DatetimeIndex, text: pd.Series, time_zone: str,
             f"{text.iloc[bad]!r}, which does not exist in [input] time_zone = {setting_text(time_zone)} "
             "(the hour skipped when clocks go forward); if the file is in standard time "
             "all year, remove time_zone") from None
-    standard = aware.tz_convert("UTC").tz_localize(None) + pd.Timedelta(hours=float(utc_offset))
-    moved = int(np.sum(np.asarray(standard != index)))
-    return standard, moved
+    in_utc = aware.tz_convert("UTC").tz_localize(None)
+    standard = in_utc + pd.Timedelta(hours=float(utc_offset))
+    # the zone's offset at each stamp [h]; daylight-saving stamps are those ahead of the
+    # zone's standard offset, which is utc_offset (checked above) except for a UTC zone
+    # (a logger kept on UTC at a site of any offset), whose stamps all move by utc_offset
+    zone_hours = np.asarray((index - in_utc) / pd.Timedelta(hours=1), dtype=float)
+    utc_zone = (time_zone.split("/")[0] in _OFFSET_ZONE_PREFIXES
+                and not np.any(zone_hours != 0.0))
+    zone_standard = 0.0 if utc_zone else float(utc_offset)
+    daylight = int(np.sum(zone_hours > zone_standard + 1e-9))
+    from_utc = len(index) if utc_zone and float(utc_offset) != 0.0 else 0
+    return standard, daylight, from_utc
 
 
 def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: np.ndarray,

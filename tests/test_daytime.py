@@ -774,3 +774,34 @@ def test_vpd_reduction_is_the_plain_exponential_bit_for_bit():
     with np.errstate(invalid="ignore"):
         plain = np.exp(-k[:, None] * data["excess"])
         assert np.array_equal(daytime._vpd_reduction(k, data), plain, equal_nan=True)
+
+
+def test_standard_errors_of_an_unconstrained_parameter_are_infinite_without_a_warning():
+    """A VPD parameter k far beyond the window's data (its Jacobian column near 1e-157, the
+    normal-matrix diagonal near 1e-313) has an unbounded standard error (least squares: the
+    variance of a parameter grows as 1 / the information in its Jacobian column, common
+    practice); it comes out infinite, and no NumPy overflow warning reaches the user
+    (regression: 'RuntimeWarning: overflow encountered in multiply' printed by
+    `fluxpart run` on the fifth independent trial's dry-season savanna, site S)."""
+    import warnings
+
+    from fluxpart.partition import daytime
+
+    rng = np.random.default_rng(5)
+    rg = np.linspace(20.0, 900.0, 48)[None, :]
+    vpd0 = 10.0
+    windows = {"rg": rg, "vpd": np.full_like(rg, vpd0 + 1.0), "factor": np.ones_like(rg),
+               "weight": np.ones_like(rg), "curvature": np.zeros(1)}
+    # beta = beta0 exp(-k (VPD - VPD0)) = 0.1 exp(-360): the light response is flat in k
+    theta = np.array([[0.05, 0.1, 360.0, 1.0]])
+    modelled = 1.0 - light_response(rg, windows["vpd"], 0.05, 0.1, 360.0, vpd0=vpd0)
+    windows["nee"] = modelled + rng.normal(0.0, 0.3, rg.shape)
+    mask = np.ones(rg.shape, dtype=bool)
+    fixed = np.zeros(theta.shape, dtype=bool)
+    fixed[:, 3] = True                            # Rref from the night
+    lower = np.array([0.0, 0.0, 0.0, 0.0])
+    upper = np.array([0.22, 250.0, np.inf, np.inf])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        errors, _ = daytime._standard_errors(theta, fixed, lower, upper, windows, mask, vpd0)
+    assert np.isposinf(errors[0, 2])

@@ -221,3 +221,25 @@ def test_stamps_in_utc_that_say_so_agree_with_time_zone_utc(time_format):
     assert list(with_zone.stamps) == list(plain.stamps)
     # local standard time of a site at UTC+1 (ISO 8601: Z is UTC)
     assert plain.stamps[0] == pd.Timestamp("2021-06-01 01:00")
+
+
+@pytest.mark.parametrize(("zone", "utc_offset"), [("UTC", 2.0), ("Europe/Berlin", 1.0),
+                                                  ("Australia/Melbourne", 10.0)])
+def test_daylight_saving_count_is_that_of_the_zone(zone, utc_offset):
+    """Only stamps the time-zone database puts in summer time count as daylight saving;
+    stamps of a logger kept on UTC at a UTC+2 site are counted as moved from UTC (before,
+    all 8352 of a trial site's UTC stamps were reported as "daylight-saving stamp(s) moved
+    back one hour"; fifth independent trial, site P1)."""
+    # a year of hourly civil stamps as the zone's clock shows them (zoneinfo of the standard
+    # library is the outside reference: dst() says which instants are summer time)
+    instants = pd.date_range("2021-01-01", "2022-01-01", freq="h", inclusive="left", tz="UTC")
+    civil = instants.tz_convert(zone).tz_localize(None)
+    text = pd.Series(civil.strftime("%Y-%m-%d %H:%M"))
+    parsed = parse_stamps(text, "%Y-%m-%d %H:%M", time_columns=("t",), source="f",
+                          lines=np.arange(len(text)) + 2, utc_offset=utc_offset,
+                          time_zone=zone)
+    summer = sum(1 for moment in instants.tz_convert(zone).to_pydatetime() if moment.dst())
+    assert parsed.daylight_saving == summer
+    assert parsed.utc_zone == (len(text) if zone == "UTC" else 0)
+    expected = instants.tz_localize(None) + pd.Timedelta(hours=utc_offset)
+    assert list(parsed.stamps) == list(expected)

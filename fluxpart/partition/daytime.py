@@ -1302,8 +1302,13 @@ def _standard_errors(theta, fixed, lower, upper, windows, mask, vpd0):
         well_posed[finite] = np.linalg.cond(correlation[finite]) < _MAX_CONDITION
     inverse = np.full_like(correlation, np.nan)
     if well_posed.any():
-        inverse[well_posed] = (np.linalg.inv(correlation[well_posed])
-                               * scale[well_posed][:, :, None] * scale[well_posed][:, None, :])
+        # a parameter the window hardly constrains (a VPD term far beyond its data: a
+        # diagonal below about 1e-308) has a scale above 1e154, whose square overflows to
+        # an infinite variance: the unbounded error it has, without a NumPy warning
+        with np.errstate(over="ignore", invalid="ignore"):
+            inverse[well_posed] = (np.linalg.inv(correlation[well_posed])
+                                   * scale[well_posed][:, :, None]
+                                   * scale[well_posed][:, None, :])
     with np.errstate(invalid="ignore"):
         errors = np.sqrt(np.diagonal(inverse, axis1=1, axis2=2) * variance[:, None])
     return np.where(free, errors, np.nan), rmse
