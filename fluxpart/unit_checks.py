@@ -25,15 +25,23 @@ a record that cannot tell (a winter-only polar file, a week of fog) it warns.
 from __future__ import annotations
 
 import math
+import re
 
 import numpy as np
 
 from .constants import CARBON_MOLAR_MASS
-from .variables import READER_VARIABLES, saturation_vapour_pressure, to_canonical, units_for
+from .variables import (
+    PER_INTERVAL_UNITS,
+    READER_VARIABLES,
+    saturation_vapour_pressure,
+    to_canonical,
+    units_for,
+)
 
 __all__ = [
     "IMPLAUSIBLE_SHARE",
     "MIN_DAYS_FOR_UNIT_CHECKS",
+    "frame_messages",
     "implausible_message",
     "mixup_messages",
 ]
@@ -762,3 +770,60 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 "rg", columns, "another unit or quantity (kW m-2, MJ m-2, PPFD or net "
                 "radiation)", converted, potential, stamps)
     return refusals, warnings
+
+
+_UNIT_SETTING = re.compile(r'set \[input\.units\] (\w+) = "([^"]+)"')
+_OTHER_UNIT = re.compile(r'or (\w+) = "([^"]+)"')
+_ACCEPT_CLAUSES = (re.compile(r' ?\(or list \w+ in \[input\] accept_units[^)]*\)'),
+                   re.compile(r'; or list \w+ in \[input\] accept_units'))
+
+
+def frame_messages(frame, potential=None, interval_minutes: int = 30) -> list:
+    """Unit mix-ups in a caller's frame of canonical columns, as warnings.
+
+    :func:`fluxpart.process` takes a frame in the canonical units and has no
+    ``[input.units]``; a frame built by hand (NEE in mg CO2 m-2 s-1, VPD in kPa, Rg in
+    kW m-2, air temperature in °F) would otherwise change the numbers without a word.
+    The checks of :func:`mixup_messages` run on it and every finding, refusal or
+    suspicion, is returned as a warning naming the conversion
+    (:func:`fluxpart.variables.to_canonical`) in place of the site-config settings.
+    RH as a fraction is named and left out of the VPD checks, which would misread it.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Canonical columns (float) on a DatetimeIndex of interval starts.
+    potential : array_like, optional
+        Potential radiation of each record [W m-2]; enables the Rg check.
+    interval_minutes : int, optional
+        Record interval [minutes].
+
+    Returns
+    -------
+    list of str
+        One line per finding, naming the column and the unit its values look like.
+    """
+    converted = {name: frame[name].to_numpy(dtype=float) for name in frame.columns
+                 if name in READER_VARIABLES and name != "nee_flag"}
+    found = []
+    if "rh" in converted and _rh_fraction(converted["rh"]):
+        del converted["rh"]
+        found.append("column 'rh' (rh, read as %): all values are at most 1.05 %, which no "
+                     "surface air stays below; it looks like a fraction: set [input.units] "
+                     "rh = \"fraction\"")
+    refusals, suspicions = mixup_messages(converted, {}, {name: name for name in converted},
+                                          interval_minutes, potential, (), frame.index)
+    lines = []
+    for message in [*found, *refusals.values(), *suspicions]:
+        message = _UNIT_SETTING.sub(
+            lambda m: (f"convert the column from \"{m[2]}\" to {READER_VARIABLES[m[1]].unit} "
+                       f"(fluxpart.variables.to_canonical(values, {m[1]!r}, \"{m[2]}\""
+                       + (f", interval_minutes={interval_minutes}"
+                          if (m[1], m[2]) in PER_INTERVAL_UNITS else "") + "))"),
+            message)
+        message = _OTHER_UNIT.sub(lambda m: f'or from "{m[2]}"', message)
+        for clause in _ACCEPT_CLAUSES:
+            message = clause.sub("", message)
+        lines.append("frame (process() takes canonical units): "
+                     + message.replace("the file", "the frame"))
+    return lines

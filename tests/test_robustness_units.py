@@ -309,3 +309,53 @@ def test_storage_with_the_opposite_sign_is_refused(seed):
                                  potential, (), frame.index)
     assert "'co2_storage' (storage)" in refusals["storage"]
     assert "opposite sign" in refusals["storage"]
+
+
+@pytest.fixture(scope="module")
+def demo_frame():
+    from fluxpart import demo
+
+    frame, _ = demo.site_year(seed=2)       # the invented Quillmoor site
+    return frame
+
+
+def test_a_callers_frame_in_another_unit_is_named(demo_frame):
+    """``process`` takes canonical units and has no [input.units]: a frame built by hand
+    with NEE in mg CO2 m-2 s-1 (1 µmol CO2 = 44.01e-3 mg, the molar mass of CO2, IUPAC)
+    gave an annual NEE 23 times too small without a word. The reader's unit checks now
+    run on a caller's frame and name the column and the conversion among the warnings."""
+    import warnings
+
+    import fluxpart
+    from fluxpart import demo
+
+    mg = demo_frame.assign(nee=demo_frame["nee"] * 44.01e-3)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", fluxpart.FluxpartWarning)
+        result = fluxpart.process(mg, demo.SITE, fluxpart.Config(ustar_bootstrap_draws=0))
+    named = [w for w in result.warnings if "process() takes canonical units" in w]
+    assert len(named) == 1, result.warnings
+    assert "column 'nee'" in named[0]
+    assert 'to_canonical(values, \'nee\', "mg CO2 m-2 s-1")' in named[0]
+    assert "[input" not in named[0]           # no site-config setting for a frame
+
+
+@pytest.mark.parametrize("name, factor, unit", [("vpd", 0.1, "kPa"), ("rg", 1e-3, "kW m-2"),
+                                                ("rh", 0.01, "fraction")])
+def test_frame_messages_name_the_conversion(demo_frame, name, factor, unit):
+    """VPD in kPa (1 kPa = 10 hPa), Rg in kW m-2 (1 kW = 1000 W) and RH as a fraction
+    (1 = 100 %) in a caller's frame are each named with the conversion; the canonical
+    frame gives no message."""
+    from fluxpart import demo
+    from fluxpart.solar import potential_radiation
+    from fluxpart.unit_checks import frame_messages
+
+    site = demo.SITE
+    potential = potential_radiation(demo_frame.index, site.latitude, site.longitude,
+                                    site.utc_offset, interval_minutes=30)
+    assert frame_messages(demo_frame, potential, 30) == []
+    changed = demo_frame.assign(**{name: demo_frame[name] * factor})
+    messages = frame_messages(changed, potential, 30)
+    assert len(messages) == 1, messages
+    assert f"column {name!r}" in messages[0] and f'"{unit}"' in messages[0]
+    assert "accept_units" not in messages[0] and "[input" not in messages[0]
