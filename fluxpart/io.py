@@ -961,19 +961,28 @@ _INPUT_HELP = {
 }
 
 
+def table_of_key(key: str) -> str | None:
+    """The site-config table that takes `key` (``"site"``, ``"input"`` or
+    ``"processing"``), or None for a key of none of them."""
+    settings = tuple(f.name for f in fields(Config))
+    return next((name for name, keys in (("site", _SITE_KEYS), ("input", _INPUT_KEYS),
+                                         ("processing", settings)) if key in keys), None)
+
+
 def _check_keys(table: dict, valid, where: str, spell: str) -> None:
     for key in table:
         if key not in valid:
+            owner = table_of_key(key) if where in ("[site]", "[input]") else None
+            if owner is not None:
+                # a setting of another table (seed under [site], canopy under [input])
+                raise ConfigError(f"{where} {key} = {setting_text(table[key])}: {key} "
+                                  f"belongs under [{owner}], not {where}: move it there")
             if where == "site config: top-level table" and key in ("columns", "units"):
                 raise ConfigError(f"site config: the table [{key}] belongs under [input]: "
                                   f"write it as [input.{key}]")
             if where == "site config: top-level table" and not isinstance(table[key], dict):
                 # a key written above the first [table] header belongs to no table
-                settings = tuple(f.name for f in fields(Config))
-                owner = next((name for name, keys in (("site", _SITE_KEYS),
-                                                      ("input", _INPUT_KEYS),
-                                                      ("processing", settings))
-                              if key in keys), None)
+                owner = table_of_key(key)
                 move = (f"move it under [{owner}]" if owner else
                         "move it under the table it belongs to ([site], [input] or "
                         "[processing])")
