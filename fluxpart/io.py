@@ -1085,6 +1085,11 @@ def _string_table(table, where: str) -> dict:
         if key == "nee_flag" and where == "[input.columns]" and isinstance(value, list):
             out[key] = value
             continue
+        if isinstance(value, list) and where == "[input.columns]":
+            # two analysers, or a flux and its storage, in one variable
+            raise ConfigError(f"{where} {key} = {setting_text(value)}: expected one column "
+                              "name; only nee_flag takes a list of columns (the storage "
+                              "flux added to NEE is mapped as storage)")
         if not isinstance(value, str) or not value:
             raise ConfigError(f"{where} {key} = {setting_text(value)}: expected a non-empty string")
         out[key] = value
@@ -1196,6 +1201,11 @@ def _check_interval(value):
 def _check_flag_accept(value) -> tuple:
     if isinstance(value, (int, float)) and not isinstance(value, bool):
         value = [value]
+    if isinstance(value, (list, tuple)) and any(isinstance(v, str) for v in value):
+        raise ConfigError(f"[input] flag_accept = {setting_text(value)}: flag values are "
+                          "numbers (the flag columns are read as numbers); recode text "
+                          "flags as numbers in a copy of the file and list the ones that "
+                          "keep a record, e.g. flag_accept = [0, 1]")
     if (not isinstance(value, (list, tuple)) or not value
             or any(isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v)
                    for v in value)):
