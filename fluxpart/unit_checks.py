@@ -530,7 +530,17 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
                 "records exceed the saturation vapour pressure at tair (median "
                 f"{np.median(ratio):.3g} times it), which no air can; {fix} (or list vpd in "
                 "[input] accept_units)"), None
-    if declared not in (None, "hPa", "mbar"):
+    # values too small: a larger unit read as the declared one (kPa read as hPa, or kPa
+    # and hPa read as a declared Pa); each candidate with its factor, smallest first
+    scale = {unit: to_canonical(np.array([1.0]), "vpd", unit)[0] for unit in units_for("vpd")}
+    declared_scale = scale[declared] if declared in scale else 1.0
+    larger = []
+    for unit in units_for("vpd"):            # hPa before its synonym mbar
+        factor = scale[unit] / declared_scale
+        if factor > 1.5 and factor not in [known for known, _ in larger]:
+            larger.append((factor, unit))
+    larger.sort()
+    if not larger:
         return None, None
     rh = converted.get("rh")
     if rh is not None:
@@ -538,17 +548,22 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
         usable = np.isfinite(expected) & (expected > 2.0)
         if usable.sum() >= 48:
             median = float(np.median(vpd[both][usable] / expected[usable]))
-            if 0.07 <= median <= 0.14:
-                return (f"column {columns['vpd']!r} (vpd, read as {shown!r}) is a median "
-                        f"{median:.3g} times the VPD computed from rh and tair: the file is "
-                        "in kPa: set [input.units] vpd = \"kPa\" (or list vpd in [input] "
-                        "accept_units)"), None
+            for factor, unit in larger:
+                if 0.7 <= median * factor <= 1.4:
+                    return (f"column {columns['vpd']!r} (vpd, read as {shown!r}) is a median "
+                            f"{median:.3g} times the VPD computed from rh and tair: the file "
+                            f"is in {unit}: set [input.units] vpd = \"{unit}\" (or list vpd "
+                            "in [input] accept_units)"), None
     if not np.percentile(ratio, 99) < 0.1:
         return None, None
+    fits = [unit for factor, unit in larger
+            if np.percentile(ratio * factor, 99) >= 0.1
+            and np.mean(vpd[both] * factor > 1.1 * saturation + 1.0) <= IMPLAUSIBLE_SHARE]
+    unit = fits[0] if fits else larger[0][1]
     text = (f"column {columns['vpd']!r} (vpd, read as {shown!r}): 99 % of values stay below a "
             "tenth of the saturation vapour pressure at tair (relative humidity would never "
-            "drop below 90 %), as VPD in kPa read as hPa does; set [input.units] vpd = "
-            "\"kPa\" (or list vpd in [input] accept_units)")
+            f"drop below 90 %), as VPD in {unit} read as {shown} does; set [input.units] vpd "
+            f"= \"{unit}\" (or list vpd in [input] accept_units)")
     warm = tair[both] >= 20.0
     # Air at 20 °C or more stays above 90 % relative humidity through whole days only in
     # fog; over a week with many warm records it dries below 90 % somewhere (common

@@ -359,3 +359,22 @@ def test_frame_messages_name_the_conversion(demo_frame, name, factor, unit):
     assert len(messages) == 1, messages
     assert f"column {name!r}" in messages[0] and f'"{unit}"' in messages[0]
     assert "accept_units" not in messages[0] and "[input" not in messages[0]
+
+
+@pytest.mark.parametrize("true_unit, factor", [("kPa", 0.1), ("hPa", 1.0)])
+@pytest.mark.parametrize("with_rh", [True, False])
+def test_vpd_declared_in_pascal_but_larger_is_refused(demo_frame, true_unit, factor, with_rh):
+    """VPD in kPa (or hPa) declared as Pa reads 1000 (100) times too small (1 kPa =
+    1000 Pa, 1 hPa = 100 Pa, SI): the too-small checks ran only for a VPD declared in hPa,
+    and a kPa file declared "Pa" moved the invented site's daytime Reco by +25 g C m-2
+    without a word (review round seven). Now refused, naming the file's unit."""
+    file_values = demo_frame["vpd"].to_numpy(float) * factor     # hPa -> the file's unit
+    converted = {"vpd": to_canonical(file_values, "vpd", "Pa"),
+                 "tair": demo_frame["tair"].to_numpy(float)}
+    if with_rh:
+        converted["rh"] = demo_frame["rh"].to_numpy(float)
+    refusals, _ = mixup_messages(converted, {"vpd": "Pa"}, {n: n for n in converted}, 30)
+    assert f'set [input.units] vpd = "{true_unit}"' in refusals.get("vpd", ""), refusals
+    right = {**converted, "vpd": to_canonical(file_values, "vpd", true_unit)}
+    refusals, _ = mixup_messages(right, {"vpd": true_unit}, {n: n for n in converted}, 30)
+    assert "vpd" not in refusals
