@@ -805,7 +805,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
     for name in converted:
         message = implausible_message(name, converted[name], values[name], units.get(name),
-                                      mapping[name], missing)
+                                      mapping[name], missing, interval_minutes)
         if message and name not in refusals:
             accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
 

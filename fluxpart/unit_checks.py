@@ -142,7 +142,7 @@ def _outside(name: str, values: np.ndarray) -> np.ndarray:
 
 
 def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarray, unit,
-                        column: str, missing: tuple) -> str | None:
+                        column: str, missing: tuple, interval_minutes: int = 30) -> str | None:
     """Message for a mostly implausible column, with its likely cause; None if plausible.
 
     Parameters
@@ -159,6 +159,9 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
         File column (for the message).
     missing : tuple
         Missing-value codes in force (for the message).
+    interval_minutes : int, optional
+        Record interval [minutes], to convert a unit per interval (Rg in MJ m-2, NEE in
+        g C m-2).
 
     Notes
     -----
@@ -192,13 +195,14 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
                f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; median "
                f"{median:.4g} {variable.unit}")
     raw_present = file_values[np.isfinite(file_values)]
-    outside_raw = raw_present[_outside(name, to_canonical(raw_present, name, unit))]
+    outside_raw = raw_present[_outside(name, to_canonical(raw_present, name, unit,
+                                                          interval_minutes=interval_minutes))]
     code, count = most_repeated(outside_raw)
     # a missing-data code explains the problem when all else is plausible without it
     rest = present[raw_present != code]
     if count >= 3 and (rest.size == 0 or _outside(name, rest).mean() <= IMPLAUSIBLE_SHARE):
         return message + missing_code_hint(code, count, missing)
-    better = _better_units(name, raw_present, unit)
+    better = _better_units(name, raw_present, unit, interval_minutes)
     if better:
         return message + (f"; the values look like {better[0]!r}: set [input.units] {name} = "
                           f"\"{better[0]}\"")
@@ -213,18 +217,19 @@ def _rh_fraction(rh: np.ndarray) -> bool:
     return present.size >= 48 and float(np.max(present)) <= 1.05
 
 
-def _better_units(name: str, raw_present: np.ndarray, declared) -> list:
+def _better_units(name: str, raw_present: np.ndarray, declared,
+                  interval_minutes: int = 30) -> list:
     """Accepted units (other than `declared`) under which the values are plausible, best first."""
     probe = np.array([1.0, 2.0])
-    declared_probe = to_canonical(probe, name, declared, interval_minutes=30)
+    declared_probe = to_canonical(probe, name, declared, interval_minutes=interval_minutes)
     candidates, seen = [], []
     for unit in units_for(name):
-        converted_probe = to_canonical(probe, name, unit, interval_minutes=30)
+        converted_probe = to_canonical(probe, name, unit, interval_minutes=interval_minutes)
         if np.allclose(converted_probe, declared_probe) or any(
                 np.allclose(converted_probe, other) for other in seen):
             continue
         seen.append(converted_probe)
-        values = to_canonical(raw_present, name, unit, interval_minutes=30)
+        values = to_canonical(raw_present, name, unit, interval_minutes=interval_minutes)
         if _outside(name, values).mean() <= 0.01 and not _outside(
                 name, np.array([np.median(values)]))[0]:
             scale = max(float(np.percentile(np.abs(values), 90)), 1e-12)

@@ -378,3 +378,20 @@ def test_vpd_declared_in_pascal_but_larger_is_refused(demo_frame, true_unit, fac
     right = {**converted, "vpd": to_canonical(file_values, "vpd", true_unit)}
     refusals, _ = mixup_messages(right, {"vpd": true_unit}, {n: n for n in converted}, 30)
     assert "vpd" not in refusals
+
+
+@pytest.mark.parametrize("name, unit, canonical_unit, values", [
+    ("rg", "MJ m-2", "W m-2", np.tile([0.0, 150.0, 420.0, 780.0, 390.0, 60.0], 20)),
+    ("nee", "g C m-2", "µmol m-2 s-1", np.tile([3.1, -8.5, -14.2, -6.0, 2.4, 2.9], 20))])
+def test_a_unit_per_interval_declared_for_a_rate_names_the_rate(name, unit, canonical_unit,
+                                                                values):
+    """Rg in W m-2 declared as MJ m-2 per record (1 W m-2 over 3600 s = 0.0036 MJ m-2, SI)
+    or NEE in µmol declared as g C m-2: the hint for the implausible column converted the
+    file's values without the record interval, so the user read "the record interval is
+    needed to convert it" instead of the unit the values have (review round seven)."""
+    from fluxpart.unit_checks import implausible_message
+
+    canonical = to_canonical(values, name, unit, interval_minutes=60)
+    message = implausible_message(name, canonical, values, unit, "col", (-9999,),
+                                  interval_minutes=60)
+    assert f'set [input.units] {name} = "{canonical_unit}"' in message
