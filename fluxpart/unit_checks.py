@@ -586,6 +586,8 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
     would be read 1.8 T + 32 degrees too warm. A month's median above 42 °C gives it away.
     """
     tair = converted.get("tair")
+    if tair is not None and units.get("tair") in ("°F", "degF"):
+        return _declared_fahrenheit("tair", converted, columns, interval_minutes)
     if tair is None or units.get("tair") not in (None, "°C", "degC"):
         return None
     per_block = int(30 * 1440 // interval_minutes)
@@ -614,6 +616,8 @@ def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes
     be read 30 K or more above the air, a respiration driver 1.8 T + 32 too warm.
     """
     tsoil, tair = converted.get("tsoil"), converted.get("tair")
+    if tsoil is not None and tair is not None and units.get("tsoil") in ("°F", "degF"):
+        return _declared_fahrenheit("tsoil", converted, columns, interval_minutes)
     if tsoil is None or tair is None or units.get("tsoil") not in (None, "°C", "degC"):
         return None
     both = np.isfinite(tsoil) & np.isfinite(tair)
@@ -631,6 +635,53 @@ def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes
             "records, where a soil near the surface stays within a few K of the air; the "
             f"values look like {unit} ({candidates[unit]:.1f} °C): set [input.units] "
             f"tsoil = \"{unit}\" (or list tsoil in [input] accept_units)")
+
+
+def _declared_fahrenheit(name: str, converted: dict, columns: dict,
+                         interval_minutes: int) -> str | None:
+    """A temperature declared in °F whose file is in °C, or None.
+
+    Read as °F, a °C record comes out (T - 32) / 1.8: a summer of 20 °C as -6.7 °C, still
+    inside the plausible range. Two measured facts give it away where the values read as
+    °C fit and read as °F do not: VPD above the saturation vapour pressure at the air
+    temperature (in more than :data:`IMPLAUSIBLE_SHARE` of records), and a soil near the
+    surface more than ``_SOIL_ABOVE_AIR`` K from the air over the same records. A record
+    truly in °F is not read as °C where a month would be warmer than ``_WARMEST_MONTH``.
+    """
+    values = converted[name]
+    as_celsius = values * 9.0 / 5.0 + 32.0             # the file's numbers, as written
+    present = as_celsius[np.isfinite(as_celsius)]
+    if not _enough_days(present.size, interval_minutes) or np.median(present) > _WARMEST_MONTH:
+        return None
+    evidence = None
+    other = converted.get("tsoil" if name == "tair" else "tair")
+    if other is not None:
+        both = np.isfinite(values) & np.isfinite(other)
+        if _enough_days(int(both.sum()), interval_minutes):
+            read, written = float(np.median(values[both])), float(np.median(as_celsius[both]))
+            reference = float(np.median(other[both]))
+            if (abs(read - reference) > _SOIL_ABOVE_AIR
+                    and abs(written - reference) <= _SOIL_ABOVE_AIR):
+                evidence = (f"its median is {read:.1f} °C, {abs(read - reference):.1f} K from "
+                            f"the {'soil' if name == 'tair' else 'air'} temperature's "
+                            f"({reference:.1f} °C) over the same records, where a soil near "
+                            "the surface stays within a few K of the air")
+    vpd = converted.get("vpd")
+    if evidence is None and name == "tair" and vpd is not None:
+        both = np.isfinite(vpd) & np.isfinite(values)
+        if _enough_days(int(both.sum()), interval_minutes):
+            read = np.mean(vpd[both] > 1.1 * saturation_vapour_pressure(values[both]) + 1.0)
+            written = np.mean(vpd[both] > 1.1 * saturation_vapour_pressure(as_celsius[both])
+                              + 1.0)
+            if read > IMPLAUSIBLE_SHARE and written <= IMPLAUSIBLE_SHARE:
+                evidence = (f"VPD exceeds the saturation vapour pressure at it in {read:.0%} "
+                            f"of records, which no air can, and in {written:.0%} with the "
+                            "values read as °C")
+    if evidence is None:
+        return None
+    return (f"column {columns[name]!r} ({name}, read as '°F'): {evidence}; the values look "
+            f"like °C: set [input.units] {name} = \"°C\" (or list {name} in [input] "
+            "accept_units)")
 
 
 def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: int,

@@ -395,3 +395,22 @@ def test_a_unit_per_interval_declared_for_a_rate_names_the_rate(name, unit, cano
     message = implausible_message(name, canonical, values, unit, "col", (-9999,),
                                   interval_minutes=60)
     assert f'set [input.units] {name} = "{canonical_unit}"' in message
+
+
+@pytest.mark.parametrize("name", ["tair", "tsoil"])
+def test_celsius_declared_as_fahrenheit_is_refused_naming_celsius(demo_frame, name):
+    """A °C column declared "°F" reads (T - 32) / 1.8 (°F definition): a 20 °C summer at
+    -6.7 °C, inside the plausible range. Air temperature so declared was refused as VPD
+    in the wrong unit (following that hint would have kept the wrong air temperature),
+    and soil temperature passed (review round seven). Now refused naming the temperature
+    and °C; the same column truly in °F passes."""
+    frame = demo_frame
+    converted = {n: frame[n].to_numpy(float) for n in ("nee", "rg", "tair", "vpd", "tsoil")}
+    columns = {n: n for n in converted}
+    wrong = {**converted, name: to_canonical(converted[name], name, "°F")}
+    refusals, _ = mixup_messages(wrong, {name: "°F"}, columns, 30)
+    assert list(refusals) == [name], refusals
+    assert f'set [input.units] {name} = "°C"' in refusals[name]
+    right = {**converted, name: to_canonical(converted[name] * 9 / 5 + 32, name, "°F")}
+    refusals, _ = mixup_messages(right, {name: "°F"}, columns, 30)
+    assert not refusals
