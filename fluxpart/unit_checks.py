@@ -32,6 +32,7 @@ import numpy as np
 from .constants import CARBON_MOLAR_MASS
 from .variables import (
     PER_INTERVAL_UNITS,
+    PPFD_PER_RG,
     READER_VARIABLES,
     saturation_vapour_pressure,
     to_canonical,
@@ -739,6 +740,41 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
             "accept_units)")
 
 
+#: Largest 99th percentile of Rg / potential radiation, with the sun high, that Rg taken
+#: from PPFD may show before the column is called global radiation mapped as ppfd. Our
+#: choice: clear skies pass about 0.75 of the potential radiation (common practice; 0.78 to
+#: 0.81 on the generated site-years of fluxpart.scenarios) and any site has 1 % of its
+#: high-sun records clear, while Rg in W m-2 divided by 2.10 stays below about 0.8 / 2.1 =
+#: 0.38; 0.5 leaves a third for a dirty or partly shaded PPFD sensor and the ±10 % of the
+#: PPFD-to-Rg ratio.
+_PPFD_CLEAR_MIN = 0.5
+
+
+def _ppfd_message(converted: dict, columns: dict, interval_minutes: int, potential):
+    """Global radiation in W m-2 mapped as ppfd (read 2.10 times too dark), or None.
+
+    Returns (refusal, warning) as :func:`_vpd_messages` does: a record of a week or
+    more refuses, a shorter one only warns.
+    """
+    ppfd = converted.get("ppfd")
+    if ppfd is None or "rg" in converted or potential is None:
+        return None, None
+    high = (np.asarray(potential) > 600.0) & np.isfinite(ppfd)
+    if high.sum() < _MIN_ACTIVE_RECORDS:
+        return None, None
+    clear = float(np.percentile(ppfd[high] / PPFD_PER_RG / np.asarray(potential)[high], 99))
+    if clear >= _PPFD_CLEAR_MIN:
+        return None, None
+    text = (f"column {columns['ppfd']!r} (ppfd, converted to rg by 1/{PPFD_PER_RG:.2f}): "
+            f"with the sun high, its brightest 1 % reach only {clear:.2f} times the radiation "
+            "at the top of the atmosphere, where clear skies pass about 0.75 of it; the "
+            "values look like global radiation in W m-2: map the column as rg in "
+            "[input.columns] instead of ppfd (or list ppfd in [input] accept_units)")
+    if _enough_days(int(np.isfinite(ppfd).sum()), interval_minutes):
+        return text, None
+    return None, text
+
+
 def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes: int,
                    potential=None, missing=(), stamps=None) -> tuple[dict, list]:
     """Find unit mix-ups that the plausible ranges let through.
@@ -832,6 +868,11 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 lambda part, sun: _rh_fraction(part["rh"]), "rh", columns,
                 "a fraction (all at most 1.05 %, which no surface air stays below for a "
                 "month)", converted, potential, stamps)
+        refuse, warn = _ppfd_message(converted, columns, interval_minutes, potential)
+        if refuse:
+            refusals["ppfd"] = refuse
+        if warn:
+            warnings.append(warn)
         refuse = _rg_message(converted, units, columns, interval_minutes, potential)
         if refuse:
             refusals["rg"] = refuse

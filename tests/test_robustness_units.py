@@ -414,3 +414,25 @@ def test_celsius_declared_as_fahrenheit_is_refused_naming_celsius(demo_frame, na
     right = {**converted, name: to_canonical(converted[name] * 9 / 5 + 32, name, "°F")}
     refusals, _ = mixup_messages(right, {name: "°F"}, columns, 30)
     assert not refusals
+
+
+def test_global_radiation_mapped_as_ppfd_is_refused(demo_frame):
+    """Rg in W m-2 mapped as ppfd is divided by 2.10 µmol J-1 (0.46 PAR share x 4.57
+    µmol J-1, McCree 1972 (m)): the invented site's brightest hours then reach 0.38 of
+    the top-of-atmosphere radiation, where clear skies pass about 0.75 (common practice).
+    It ran without a word, nighttime GPP -22 g C m-2 (review round seven); now refused.
+    The same sunlight as PPFD passes."""
+    from fluxpart import demo
+    from fluxpart.solar import potential_radiation
+
+    site = demo.SITE
+    potential = potential_radiation(demo_frame.index, site.latitude, site.longitude,
+                                    site.utc_offset, interval_minutes=30)
+    base = {n: demo_frame[n].to_numpy(float) for n in ("nee", "tair", "vpd")}
+    columns = {"nee": "nee", "tair": "tair", "vpd": "vpd", "ppfd": "sw_in"}
+    wrong = {**base, "ppfd": demo_frame["rg"].to_numpy(float)}
+    refusals, _ = mixup_messages(wrong, {}, columns, 30, potential)
+    assert "map the column as rg" in refusals.get("ppfd", ""), refusals
+    right = {**base, "ppfd": demo_frame["rg"].to_numpy(float) * 0.46 * 4.57}
+    refusals, warnings = mixup_messages(right, {}, columns, 30, potential)
+    assert "ppfd" not in refusals and not any("ppfd" in w for w in warnings)
