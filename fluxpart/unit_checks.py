@@ -740,8 +740,9 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
             "accept_units)")
 
 
-#: Largest 99th percentile of Rg / potential radiation, with the sun high, that Rg taken
-#: from PPFD may show before the column is called global radiation mapped as ppfd. Our
+#: Smallest 99th percentile of Rg / potential radiation, with the sun high, that Rg (or Rg
+#: taken from PPFD) may show before it is called too dark (Rg in W m-2 mapped as ppfd, PAR
+#: in W m-2 mapped as rg, about 0.46 Rg (m)). Our
 #: choice: clear skies pass about 0.75 of the potential radiation (common practice; 0.78 to
 #: 0.81 on the generated site-years of fluxpart.scenarios) and any site has 1 % of its
 #: high-sun records clear, while Rg in W m-2 divided by 2.10 stays below about 0.8 / 2.1 =
@@ -750,27 +751,44 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
 _PPFD_CLEAR_MIN = 0.5
 
 
-def _ppfd_message(converted: dict, columns: dict, interval_minutes: int, potential):
-    """Global radiation in W m-2 mapped as ppfd (read 2.10 times too dark), or None.
+def _too_dark_message(name: str, converted: dict, units: dict, columns: dict,
+                      interval_minutes: int, potential):
+    """Radiation read about half as bright as any sky allows, or None: global radiation
+    in W m-2 mapped as ppfd (divided by 2.10), or PAR in W m-2 (about 0.46 of Rg) mapped
+    as rg.
 
     Returns (refusal, warning) as :func:`_vpd_messages` does: a record of a week or
     more refuses, a shorter one only warns.
     """
-    ppfd = converted.get("ppfd")
-    if ppfd is None or "rg" in converted or potential is None:
+    values = converted.get(name)
+    if (values is None or potential is None or (name == "ppfd" and "rg" in converted)
+            or (name == "rg" and units.get("rg") not in (None, "W m-2", "W/m2"))):
         return None, None
-    high = (np.asarray(potential) > 600.0) & np.isfinite(ppfd)
+    high = (np.asarray(potential) > 600.0) & np.isfinite(values)
     if high.sum() < _MIN_ACTIVE_RECORDS:
         return None, None
-    clear = float(np.percentile(ppfd[high] / PPFD_PER_RG / np.asarray(potential)[high], 99))
-    if clear >= _PPFD_CLEAR_MIN:
+    scale = 1.0 / PPFD_PER_RG if name == "ppfd" else 1.0
+    clear = float(np.percentile(values[high] * scale / np.asarray(potential)[high], 99))
+    if clear >= _PPFD_CLEAR_MIN or clear <= 0.0:
         return None, None
-    text = (f"column {columns['ppfd']!r} (ppfd, converted to rg by 1/{PPFD_PER_RG:.2f}): "
-            f"with the sun high, its brightest 1 % reach only {clear:.2f} times the radiation "
-            "at the top of the atmosphere, where clear skies pass about 0.75 of it; the "
-            "values look like global radiation in W m-2: map the column as rg in "
-            "[input.columns] instead of ppfd (or list ppfd in [input] accept_units)")
-    if _enough_days(int(np.isfinite(ppfd).sum()), interval_minutes):
+    # ... and dark where the settings put no sun: radiation at those hours is a clock or
+    # site position hours off (the clock check names it), not a unit or quantity
+    dark = (np.asarray(potential) <= 0.0) & np.isfinite(values)
+    if dark.sum() < _MIN_ACTIVE_RECORDS or np.percentile(values[dark] * scale, 99) > 50.0:
+        return None, None
+    found = (f"with the sun high, its brightest 1 % reach only {clear:.2f} times the "
+             "radiation at the top of the atmosphere, where clear skies pass about 0.75 of it")
+    if name == "ppfd":
+        text = (f"column {columns['ppfd']!r} (ppfd, converted to rg by "
+                f"1/{PPFD_PER_RG:.2f}): {found}; the values look like global radiation in "
+                "W m-2: map the column as rg in [input.columns] instead of ppfd (or list "
+                "ppfd in [input] accept_units)")
+    else:
+        text = (f"column {columns['rg']!r} (rg): {found}; the values look like PAR in W m-2 "
+                "(about 0.46 of global radiation) or a shaded or soiled sensor: map global "
+                "(incoming short-wave) radiation as rg, or PPFD as ppfd (or list rg in "
+                "[input] accept_units)")
+    if _enough_days(int(np.isfinite(values).sum()), interval_minutes):
         return text, None
     return None, text
 
@@ -868,7 +886,8 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 lambda part, sun: _rh_fraction(part["rh"]), "rh", columns,
                 "a fraction (all at most 1.05 %, which no surface air stays below for a "
                 "month)", converted, potential, stamps)
-        refuse, warn = _ppfd_message(converted, columns, interval_minutes, potential)
+        refuse, warn = _too_dark_message("ppfd", converted, units, columns,
+                                         interval_minutes, potential)
         if refuse:
             refusals["ppfd"] = refuse
         if warn:
@@ -877,6 +896,13 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
         if refuse:
             refusals["rg"] = refuse
         else:
+            refuse, warn = _too_dark_message("rg", converted, units, columns,
+                                             interval_minutes, potential)
+            if refuse:
+                refusals["rg"] = refuse
+            if warn:
+                warnings.append(warn)
+        if "rg" not in refusals:
             warnings += _changed_within(
                 lambda part, sun: _rg_message(part, units, columns, interval_minutes, sun),
                 "rg", columns, "another unit or quantity (kW m-2, MJ m-2, PPFD or net "

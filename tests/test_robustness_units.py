@@ -436,3 +436,23 @@ def test_global_radiation_mapped_as_ppfd_is_refused(demo_frame):
     right = {**base, "ppfd": demo_frame["rg"].to_numpy(float) * 0.46 * 4.57}
     refusals, warnings = mixup_messages(right, {}, columns, 30, potential)
     assert "ppfd" not in refusals and not any("ppfd" in w for w in warnings)
+
+
+def test_par_in_watts_mapped_as_rg_is_refused(demo_frame):
+    """PAR in W m-2 is about 0.46 of global radiation (m): mapped as rg, the invented
+    site's brightest hours reach 0.37 of the top-of-atmosphere radiation, where clear
+    skies pass about 0.75 (common practice); it ran without a word (review round seven).
+    Refused now; the site's own Rg passes."""
+    from fluxpart import demo
+    from fluxpart.solar import potential_radiation
+
+    site = demo.SITE
+    potential = potential_radiation(demo_frame.index, site.latitude, site.longitude,
+                                    site.utc_offset, interval_minutes=30)
+    names = ("nee", "rg", "tair", "vpd")
+    converted = {n: demo_frame[n].to_numpy(float) for n in names}
+    refusals, _ = mixup_messages(converted, {}, {n: n for n in names}, 30, potential)
+    assert "rg" not in refusals
+    par = {**converted, "rg": converted["rg"] * 0.46}
+    refusals, _ = mixup_messages(par, {}, {n: n for n in names}, 30, potential)
+    assert "the values look like PAR in W m-2" in refusals.get("rg", ""), refusals
