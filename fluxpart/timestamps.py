@@ -723,16 +723,6 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
                                f"({share:.0%} of steps); fluxpart needs 30- or 60-minute "
                                "records: average the file to 30 or 60 minutes first")
         declared = int(typical)
-    elif steps.size and not (steps == declared).any():
-        # every record an interval apart of another length: the setting, not the logger
-        found, counts = np.unique(steps, return_counts=True)
-        typical = float(found[np.argmax(counts)])
-        if typical in INTERVALS_MINUTES:
-            raise SpacingError(f"[input] interval_minutes = {declared}, but no two stamps are "
-                               f"{declared} minutes apart: they are {typical:g} minutes apart "
-                               f"({counts.max() / steps.size:.0%} of steps); set "
-                               f"interval_minutes = {typical:g} or leave it out to infer it "
-                               "from the stamps")
     irregular = np.flatnonzero(np.abs(steps / declared - np.round(steps / declared)) > 1e-9)
     if irregular.size:
         row = int(irregular[0]) + 1

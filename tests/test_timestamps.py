@@ -192,21 +192,6 @@ def test_hour_24_still_read_with_fixed_width_formats():
     assert parsed.hour_24 == 1
 
 
-def test_declared_interval_no_two_stamps_have_is_refused():
-    """interval_minutes = 30 on an hourly file read every record as a half hour and
-    inserted every other one as missing (half the records, annual NEE -249.1 for -245.1
-    g C m-2 with the right interval), with a warning advising to average the file; the
-    setting contradicts every stamp, so it is refused naming it (review round seven)."""
-    hourly = pd.date_range("2021-01-01", periods=24 * 10, freq="60min")
-    with pytest.raises(SpacingError, match=r"^\[input\] interval_minutes = 30, but no two "
-                       r"stamps are 30 minutes apart: they are 60 minutes apart \(100% of "
-                       r"steps\); set interval_minutes = 60"):
-        infer_interval(hourly, declared=30)
-    assert infer_interval(hourly, declared=60) == 60
-    half_hourly_with_gaps = hourly.union(hourly[:5] + pd.Timedelta("30min"))
-    assert infer_interval(half_hourly_with_gaps, declared=30) == 30
-
-
 def test_interval_change_within_the_record_is_warned():
     """A logger switched from 30- to 60-minute records in October: the stretch of 60-minute
     steps (a day or more) is named; every other half-hour was inserted as missing, each hourly
