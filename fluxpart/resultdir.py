@@ -691,6 +691,11 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
         error): a file that cannot be read is bad input, not a changed result.
     """
     directory = Path(directory)
+    if not any(key in manifest for key in ("seal", "format", "tables")):
+        # another program's manifest.json (a web app's, a data package's)
+        return [FolderProblem(MANIFEST_FILE, "format", "is not a fluxpart manifest (it has "
+                              "no seal, format or tables): the folder is not a fluxpart "
+                              "result folder")]
     problems = []
     if "seal" not in manifest:
         problems.append(FolderProblem(MANIFEST_FILE, "seal", "has no seal; it was not written "
