@@ -507,6 +507,14 @@ class Config:
         processing = document.get("processing", {})
         if not isinstance(processing, dict):
             raise ConfigError("[processing] must be a table of settings")
+        from .io import table_of_key
+
+        for key in processing:
+            owner = table_of_key(key)
+            if owner in ("site", "input"):      # canopy, time_zone, missing, ...
+                raise ConfigError(f"[processing] {key} = {setting_text(processing[key])}: "
+                                  f"{key} belongs under [{owner}], not [processing]: move it "
+                                  "there")
         return cls.from_mapping(processing)
 
     def to_dict(self) -> dict:

@@ -806,7 +806,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
     for name in converted:
         message = implausible_message(name, converted[name], values[name], units.get(name),
-                                      mapping[name], missing)
+                                      mapping[name], missing, interval_minutes)
         if message and name not in refusals:
             accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
 
@@ -962,19 +962,28 @@ _INPUT_HELP = {
 }
 
 
+def table_of_key(key: str) -> str | None:
+    """The site-config table that takes `key` (``"site"``, ``"input"`` or
+    ``"processing"``), or None for a key of none of them."""
+    settings = tuple(f.name for f in fields(Config))
+    return next((name for name, keys in (("site", _SITE_KEYS), ("input", _INPUT_KEYS),
+                                         ("processing", settings)) if key in keys), None)
+
+
 def _check_keys(table: dict, valid, where: str, spell: str) -> None:
     for key in table:
         if key not in valid:
+            owner = table_of_key(key) if where in ("[site]", "[input]") else None
+            if owner is not None:
+                # a setting of another table (seed under [site], canopy under [input])
+                raise ConfigError(f"{where} {key} = {setting_text(table[key])}: {key} "
+                                  f"belongs under [{owner}], not {where}: move it there")
             if where == "site config: top-level table" and key in ("columns", "units"):
                 raise ConfigError(f"site config: the table [{key}] belongs under [input]: "
                                   f"write it as [input.{key}]")
             if where == "site config: top-level table" and not isinstance(table[key], dict):
                 # a key written above the first [table] header belongs to no table
-                settings = tuple(f.name for f in fields(Config))
-                owner = next((name for name, keys in (("site", _SITE_KEYS),
-                                                      ("input", _INPUT_KEYS),
-                                                      ("processing", settings))
-                              if key in keys), None)
+                owner = table_of_key(key)
                 move = (f"move it under [{owner}]" if owner else
                         "move it under the table it belongs to ([site], [input] or "
                         "[processing])")
@@ -1077,6 +1086,11 @@ def _string_table(table, where: str) -> dict:
         if key == "nee_flag" and where == "[input.columns]" and isinstance(value, list):
             out[key] = value
             continue
+        if isinstance(value, list) and where == "[input.columns]":
+            # two analysers, or a flux and its storage, in one variable
+            raise ConfigError(f"{where} {key} = {setting_text(value)}: expected one column "
+                              "name; only nee_flag takes a list of columns (the storage "
+                              "flux added to NEE is mapped as storage)")
         if not isinstance(value, str) or not value:
             raise ConfigError(f"{where} {key} = {setting_text(value)}: expected a non-empty string")
         out[key] = value
@@ -1188,6 +1202,11 @@ def _check_interval(value):
 def _check_flag_accept(value) -> tuple:
     if isinstance(value, (int, float)) and not isinstance(value, bool):
         value = [value]
+    if isinstance(value, (list, tuple)) and any(isinstance(v, str) for v in value):
+        raise ConfigError(f"[input] flag_accept = {setting_text(value)}: flag values are "
+                          "numbers (the flag columns are read as numbers); recode text "
+                          "flags as numbers in a copy of the file and list the ones that "
+                          "keep a record, e.g. flag_accept = [0, 1]")
     if (not isinstance(value, (list, tuple)) or not value
             or any(isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v)
                    for v in value)):

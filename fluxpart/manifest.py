@@ -259,6 +259,22 @@ def read_manifest(directory) -> dict:
         raise unreadable(error.filename or directory, error) from None
 
 
+def _nearby_result(directory: Path) -> str:
+    """A hint naming the result folder next to `directory`: the one whose report page
+    folder it is (``out/report``), or the one folder it holds (a bundle of input, site
+    config and ``out/``); empty where there is none."""
+    if (directory / "report.html").is_file() and (directory.parent / MANIFEST_FILE).is_file():
+        return (f"; it is the report page folder of the result folder "
+                f"{str(directory.parent)!r}: give that folder")
+    try:
+        held = sorted(p for p in directory.iterdir() if (p / MANIFEST_FILE).is_file())
+    except OSError:
+        return ""
+    if len(held) == 1:
+        return f"; it holds the result folder {str(held[0])!r}: give that folder"
+    return ""
+
+
 def _read_manifest(directory: Path) -> dict:
     path = directory / MANIFEST_FILE
     if not Path(directory).exists():
@@ -272,7 +288,7 @@ def _read_manifest(directory: Path) -> dict:
         batch = ("; it is a batch output folder: give one site's folder in it "
                  f"({str(Path(directory) / '<site key>')!r}), or read its network tables "
                  "with fluxpart.batch.read_network" if (directory / "network.json").is_file()
-                 else "")
+                 else _nearby_result(Path(directory)))
         raise InputFileError(f"{str(path)!r} does not exist: {str(directory)!r} is not a "
                              f"fluxpart result folder{batch}")
     try:

@@ -47,6 +47,7 @@ from . import (
     storage_check,
     timestamps,
     uncertainty,
+    unit_checks,
     ustar,
     ustar_seasonal,
 )
@@ -709,6 +710,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
 
     geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     screened = screens.screened
+    if "reader" not in (provenance or {}):      # a caller's frame: no reader checked its units
+        warnings.extend(f"input: {text}" for text in unit_checks.frame_messages(
+            frame, geometry["potential_radiation"].to_numpy(), interval))
     verdict, findings = _clock_and_preflight(frame, site, config, interval, geometry, is_night,
                                              screens, (provenance or {}).get("reader"))
     _refuse(verdict, findings, config)

@@ -540,6 +540,13 @@ def run_log_record(directory: Path, provenance: dict) -> dict:
     }
 
 
+def _refusal(directory: Path, reason: str) -> OutputError:
+    """The error refusing to replace `directory`, its fix named once (another site's
+    result names its own)."""
+    fix = "" if "choose another --out" in reason else "; choose another --out"
+    return OutputError(f"output folder {str(directory)!r} {reason}{fix}")
+
+
 def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, provenance: dict,
                  warnings=(), lock_timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None,
                  lock_held: bool = False) -> Path:
@@ -588,7 +595,7 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
     site_name = site.get("name") if isinstance(site, dict) else None
     reason = replace_refusal(directory, site_name)
     if reason:
-        raise OutputError(f"output folder {str(directory)!r} {reason}; choose another --out")
+        raise _refusal(directory, reason)
     try:
         directory.parent.mkdir(parents=True, exist_ok=True)
     except OSError as error:
@@ -599,7 +606,7 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
         clean_leftovers(directory)
         reason = replace_refusal(directory, site_name)
         if reason:
-            raise OutputError(f"output folder {str(directory)!r} {reason}; choose another --out")
+            raise _refusal(directory, reason)
         try:
             staging = make_staging(directory)
         except OSError as error:
@@ -684,6 +691,11 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
         error): a file that cannot be read is bad input, not a changed result.
     """
     directory = Path(directory)
+    if not any(key in manifest for key in ("seal", "format", "tables")):
+        # another program's manifest.json (a web app's, a data package's)
+        return [FolderProblem(MANIFEST_FILE, "format", "is not a fluxpart manifest (it has "
+                              "no seal, format or tables): the folder is not a fluxpart "
+                              "result folder")]
     problems = []
     if "seal" not in manifest:
         problems.append(FolderProblem(MANIFEST_FILE, "seal", "has no seal; it was not written "

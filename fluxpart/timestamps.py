@@ -404,6 +404,13 @@ def _fraction_hint(failed: pd.Series, time_format: str) -> str:
     of year or hour; integers saved from a table of floating-point numbers), else ''."""
     if "." in time_format or time_format.upper() == "ISO8601":
         return ""
+    if failed.str.fullmatch(r"\s*[+-]?\d+(?:[.,]\d+)?[eE][+-]?\d+\s*").all():
+        # a spreadsheet showing yyyymmddhhmm numbers in scientific notation saves them so
+        return (f"the stamps are numbers in scientific notation ({failed.iloc[0].strip()!r}), "
+                "as a spreadsheet saves a column of numbers such as 202106011330 it shows "
+                "rounded: their day, hour and minute digits are lost; export the column again "
+                "formatted as text (or as dates and times, e.g. 2021-06-01 13:30) and set "
+                "time_format to match")
     fractions = failed.str.extractall(r"(?<![\d.])\d+\.(\d+)(?![\d.])")
     if fractions.empty:
         return ""

@@ -25,15 +25,24 @@ a record that cannot tell (a winter-only polar file, a week of fog) it warns.
 from __future__ import annotations
 
 import math
+import re
 
 import numpy as np
 
 from .constants import CARBON_MOLAR_MASS
-from .variables import READER_VARIABLES, saturation_vapour_pressure, to_canonical, units_for
+from .variables import (
+    PER_INTERVAL_UNITS,
+    PPFD_PER_RG,
+    READER_VARIABLES,
+    saturation_vapour_pressure,
+    to_canonical,
+    units_for,
+)
 
 __all__ = [
     "IMPLAUSIBLE_SHARE",
     "MIN_DAYS_FOR_UNIT_CHECKS",
+    "frame_messages",
     "implausible_message",
     "mixup_messages",
 ]
@@ -134,7 +143,7 @@ def _outside(name: str, values: np.ndarray) -> np.ndarray:
 
 
 def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarray, unit,
-                        column: str, missing: tuple) -> str | None:
+                        column: str, missing: tuple, interval_minutes: int = 30) -> str | None:
     """Message for a mostly implausible column, with its likely cause; None if plausible.
 
     Parameters
@@ -151,6 +160,9 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
         File column (for the message).
     missing : tuple
         Missing-value codes in force (for the message).
+    interval_minutes : int, optional
+        Record interval [minutes], to convert a unit per interval (Rg in MJ m-2, NEE in
+        g C m-2).
 
     Notes
     -----
@@ -184,13 +196,14 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
                f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; median "
                f"{median:.4g} {variable.unit}")
     raw_present = file_values[np.isfinite(file_values)]
-    outside_raw = raw_present[_outside(name, to_canonical(raw_present, name, unit))]
+    outside_raw = raw_present[_outside(name, to_canonical(raw_present, name, unit,
+                                                          interval_minutes=interval_minutes))]
     code, count = most_repeated(outside_raw)
     # a missing-data code explains the problem when all else is plausible without it
     rest = present[raw_present != code]
     if count >= 3 and (rest.size == 0 or _outside(name, rest).mean() <= IMPLAUSIBLE_SHARE):
         return message + missing_code_hint(code, count, missing)
-    better = _better_units(name, raw_present, unit)
+    better = _better_units(name, raw_present, unit, interval_minutes)
     if better:
         return message + (f"; the values look like {better[0]!r}: set [input.units] {name} = "
                           f"\"{better[0]}\"")
@@ -205,18 +218,19 @@ def _rh_fraction(rh: np.ndarray) -> bool:
     return present.size >= 48 and float(np.max(present)) <= 1.05
 
 
-def _better_units(name: str, raw_present: np.ndarray, declared) -> list:
+def _better_units(name: str, raw_present: np.ndarray, declared,
+                  interval_minutes: int = 30) -> list:
     """Accepted units (other than `declared`) under which the values are plausible, best first."""
     probe = np.array([1.0, 2.0])
-    declared_probe = to_canonical(probe, name, declared, interval_minutes=30)
+    declared_probe = to_canonical(probe, name, declared, interval_minutes=interval_minutes)
     candidates, seen = [], []
     for unit in units_for(name):
-        converted_probe = to_canonical(probe, name, unit, interval_minutes=30)
+        converted_probe = to_canonical(probe, name, unit, interval_minutes=interval_minutes)
         if np.allclose(converted_probe, declared_probe) or any(
                 np.allclose(converted_probe, other) for other in seen):
             continue
         seen.append(converted_probe)
-        values = to_canonical(raw_present, name, unit, interval_minutes=30)
+        values = to_canonical(raw_present, name, unit, interval_minutes=interval_minutes)
         if _outside(name, values).mean() <= 0.01 and not _outside(
                 name, np.array([np.median(values)]))[0]:
             scale = max(float(np.percentile(np.abs(values), 90)), 1e-12)
@@ -522,7 +536,17 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
                 "records exceed the saturation vapour pressure at tair (median "
                 f"{np.median(ratio):.3g} times it), which no air can; {fix} (or list vpd in "
                 "[input] accept_units)"), None
-    if declared not in (None, "hPa", "mbar"):
+    # values too small: a larger unit read as the declared one (kPa read as hPa, or kPa
+    # and hPa read as a declared Pa); each candidate with its factor, smallest first
+    scale = {unit: to_canonical(np.array([1.0]), "vpd", unit)[0] for unit in units_for("vpd")}
+    declared_scale = scale[declared] if declared in scale else 1.0
+    larger = []
+    for unit in units_for("vpd"):            # hPa before its synonym mbar
+        factor = scale[unit] / declared_scale
+        if factor > 1.5 and factor not in [known for known, _ in larger]:
+            larger.append((factor, unit))
+    larger.sort()
+    if not larger:
         return None, None
     rh = converted.get("rh")
     if rh is not None:
@@ -530,17 +554,22 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
         usable = np.isfinite(expected) & (expected > 2.0)
         if usable.sum() >= 48:
             median = float(np.median(vpd[both][usable] / expected[usable]))
-            if 0.07 <= median <= 0.14:
-                return (f"column {columns['vpd']!r} (vpd, read as {shown!r}) is a median "
-                        f"{median:.3g} times the VPD computed from rh and tair: the file is "
-                        "in kPa: set [input.units] vpd = \"kPa\" (or list vpd in [input] "
-                        "accept_units)"), None
+            for factor, unit in larger:
+                if 0.7 <= median * factor <= 1.4:
+                    return (f"column {columns['vpd']!r} (vpd, read as {shown!r}) is a median "
+                            f"{median:.3g} times the VPD computed from rh and tair: the file "
+                            f"is in {unit}: set [input.units] vpd = \"{unit}\" (or list vpd "
+                            "in [input] accept_units)"), None
     if not np.percentile(ratio, 99) < 0.1:
         return None, None
+    fits = [unit for factor, unit in larger
+            if np.percentile(ratio * factor, 99) >= 0.1
+            and np.mean(vpd[both] * factor > 1.1 * saturation + 1.0) <= IMPLAUSIBLE_SHARE]
+    unit = fits[0] if fits else larger[0][1]
     text = (f"column {columns['vpd']!r} (vpd, read as {shown!r}): 99 % of values stay below a "
             "tenth of the saturation vapour pressure at tair (relative humidity would never "
-            "drop below 90 %), as VPD in kPa read as hPa does; set [input.units] vpd = "
-            "\"kPa\" (or list vpd in [input] accept_units)")
+            f"drop below 90 %), as VPD in {unit} read as {shown} does; set [input.units] vpd "
+            f"= \"{unit}\" (or list vpd in [input] accept_units)")
     warm = tair[both] >= 20.0
     # Air at 20 °C or more stays above 90 % relative humidity through whole days only in
     # fog; over a week with many warm records it dries below 90 % somewhere (common
@@ -558,6 +587,8 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
     would be read 1.8 T + 32 degrees too warm. A month's median above 42 °C gives it away.
     """
     tair = converted.get("tair")
+    if tair is not None and units.get("tair") in ("°F", "degF"):
+        return _declared_fahrenheit("tair", converted, columns, interval_minutes)
     if tair is None or units.get("tair") not in (None, "°C", "degC"):
         return None
     per_block = int(30 * 1440 // interval_minutes)
@@ -586,6 +617,8 @@ def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes
     be read 30 K or more above the air, a respiration driver 1.8 T + 32 too warm.
     """
     tsoil, tair = converted.get("tsoil"), converted.get("tair")
+    if tsoil is not None and tair is not None and units.get("tsoil") in ("°F", "degF"):
+        return _declared_fahrenheit("tsoil", converted, columns, interval_minutes)
     if tsoil is None or tair is None or units.get("tsoil") not in (None, "°C", "degC"):
         return None
     both = np.isfinite(tsoil) & np.isfinite(tair)
@@ -603,6 +636,53 @@ def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes
             "records, where a soil near the surface stays within a few K of the air; the "
             f"values look like {unit} ({candidates[unit]:.1f} °C): set [input.units] "
             f"tsoil = \"{unit}\" (or list tsoil in [input] accept_units)")
+
+
+def _declared_fahrenheit(name: str, converted: dict, columns: dict,
+                         interval_minutes: int) -> str | None:
+    """A temperature declared in °F whose file is in °C, or None.
+
+    Read as °F, a °C record comes out (T - 32) / 1.8: a summer of 20 °C as -6.7 °C, still
+    inside the plausible range. Two measured facts give it away where the values read as
+    °C fit and read as °F do not: VPD above the saturation vapour pressure at the air
+    temperature (in more than :data:`IMPLAUSIBLE_SHARE` of records), and a soil near the
+    surface more than ``_SOIL_ABOVE_AIR`` K from the air over the same records. A record
+    truly in °F is not read as °C where a month would be warmer than ``_WARMEST_MONTH``.
+    """
+    values = converted[name]
+    as_celsius = values * 9.0 / 5.0 + 32.0             # the file's numbers, as written
+    present = as_celsius[np.isfinite(as_celsius)]
+    if not _enough_days(present.size, interval_minutes) or np.median(present) > _WARMEST_MONTH:
+        return None
+    evidence = None
+    other = converted.get("tsoil" if name == "tair" else "tair")
+    if other is not None:
+        both = np.isfinite(values) & np.isfinite(other)
+        if _enough_days(int(both.sum()), interval_minutes):
+            read, written = float(np.median(values[both])), float(np.median(as_celsius[both]))
+            reference = float(np.median(other[both]))
+            if (abs(read - reference) > _SOIL_ABOVE_AIR
+                    and abs(written - reference) <= _SOIL_ABOVE_AIR):
+                evidence = (f"its median is {read:.1f} °C, {abs(read - reference):.1f} K from "
+                            f"the {'soil' if name == 'tair' else 'air'} temperature's "
+                            f"({reference:.1f} °C) over the same records, where a soil near "
+                            "the surface stays within a few K of the air")
+    vpd = converted.get("vpd")
+    if evidence is None and name == "tair" and vpd is not None:
+        both = np.isfinite(vpd) & np.isfinite(values)
+        if _enough_days(int(both.sum()), interval_minutes):
+            read = np.mean(vpd[both] > 1.1 * saturation_vapour_pressure(values[both]) + 1.0)
+            written = np.mean(vpd[both] > 1.1 * saturation_vapour_pressure(as_celsius[both])
+                              + 1.0)
+            if read > IMPLAUSIBLE_SHARE and written <= IMPLAUSIBLE_SHARE:
+                evidence = (f"VPD exceeds the saturation vapour pressure at it in {read:.0%} "
+                            f"of records, which no air can, and in {written:.0%} with the "
+                            "values read as °C")
+    if evidence is None:
+        return None
+    return (f"column {columns[name]!r} ({name}, read as '°F'): {evidence}; the values look "
+            f"like °C: set [input.units] {name} = \"°C\" (or list {name} in [input] "
+            "accept_units)")
 
 
 def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: int,
@@ -658,6 +738,59 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
             + (" per interval" if best == "MJ m-2" else "")
             + f": set [input.units] rg = \"{best}\" (or \"{other}\"; or list rg in [input] "
             "accept_units)")
+
+
+#: Smallest 99th percentile of Rg / potential radiation, with the sun high, that Rg (or Rg
+#: taken from PPFD) may show before it is called too dark (Rg in W m-2 mapped as ppfd, PAR
+#: in W m-2 mapped as rg, about 0.46 Rg (m)). Our
+#: choice: clear skies pass about 0.75 of the potential radiation (common practice; 0.78 to
+#: 0.81 on the generated site-years of fluxpart.scenarios) and any site has 1 % of its
+#: high-sun records clear, while Rg in W m-2 divided by 2.10 stays below about 0.8 / 2.1 =
+#: 0.38; 0.5 leaves a third for a dirty or partly shaded PPFD sensor and the ±10 % of the
+#: PPFD-to-Rg ratio.
+_PPFD_CLEAR_MIN = 0.5
+
+
+def _too_dark_message(name: str, converted: dict, units: dict, columns: dict,
+                      interval_minutes: int, potential):
+    """Radiation read about half as bright as any sky allows, or None: global radiation
+    in W m-2 mapped as ppfd (divided by 2.10), or PAR in W m-2 (about 0.46 of Rg) mapped
+    as rg.
+
+    Returns (refusal, warning) as :func:`_vpd_messages` does: a record of a week or
+    more refuses, a shorter one only warns.
+    """
+    values = converted.get(name)
+    if (values is None or potential is None or (name == "ppfd" and "rg" in converted)
+            or (name == "rg" and units.get("rg") not in (None, "W m-2", "W/m2"))):
+        return None, None
+    high = (np.asarray(potential) > 600.0) & np.isfinite(values)
+    if high.sum() < _MIN_ACTIVE_RECORDS:
+        return None, None
+    scale = 1.0 / PPFD_PER_RG if name == "ppfd" else 1.0
+    clear = float(np.percentile(values[high] * scale / np.asarray(potential)[high], 99))
+    if clear >= _PPFD_CLEAR_MIN or clear <= 0.0:
+        return None, None
+    # ... and dark where the settings put no sun: radiation at those hours is a clock or
+    # site position hours off (the clock check names it), not a unit or quantity
+    dark = (np.asarray(potential) <= 0.0) & np.isfinite(values)
+    if dark.sum() < _MIN_ACTIVE_RECORDS or np.percentile(values[dark] * scale, 99) > 50.0:
+        return None, None
+    found = (f"with the sun high, its brightest 1 % reach only {clear:.2f} times the "
+             "radiation at the top of the atmosphere, where clear skies pass about 0.75 of it")
+    if name == "ppfd":
+        text = (f"column {columns['ppfd']!r} (ppfd, converted to rg by "
+                f"1/{PPFD_PER_RG:.2f}): {found}; the values look like global radiation in "
+                "W m-2: map the column as rg in [input.columns] instead of ppfd (or list "
+                "ppfd in [input] accept_units)")
+    else:
+        text = (f"column {columns['rg']!r} (rg): {found}; the values look like PAR in W m-2 "
+                "(about 0.46 of global radiation) or a shaded or soiled sensor: map global "
+                "(incoming short-wave) radiation as rg, or PPFD as ppfd (or list rg in "
+                "[input] accept_units)")
+    if _enough_days(int(np.isfinite(values).sum()), interval_minutes):
+        return text, None
+    return None, text
 
 
 def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes: int,
@@ -753,12 +886,82 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 lambda part, sun: _rh_fraction(part["rh"]), "rh", columns,
                 "a fraction (all at most 1.05 %, which no surface air stays below for a "
                 "month)", converted, potential, stamps)
+        refuse, warn = _too_dark_message("ppfd", converted, units, columns,
+                                         interval_minutes, potential)
+        if refuse:
+            refusals["ppfd"] = refuse
+        if warn:
+            warnings.append(warn)
         refuse = _rg_message(converted, units, columns, interval_minutes, potential)
         if refuse:
             refusals["rg"] = refuse
         else:
+            refuse, warn = _too_dark_message("rg", converted, units, columns,
+                                             interval_minutes, potential)
+            if refuse:
+                refusals["rg"] = refuse
+            if warn:
+                warnings.append(warn)
+        if "rg" not in refusals:
             warnings += _changed_within(
                 lambda part, sun: _rg_message(part, units, columns, interval_minutes, sun),
                 "rg", columns, "another unit or quantity (kW m-2, MJ m-2, PPFD or net "
                 "radiation)", converted, potential, stamps)
     return refusals, warnings
+
+
+_UNIT_SETTING = re.compile(r'set \[input\.units\] (\w+) = "([^"]+)"')
+_OTHER_UNIT = re.compile(r'or (\w+) = "([^"]+)"')
+_ACCEPT_CLAUSES = (re.compile(r' ?\(or list \w+ in \[input\] accept_units[^)]*\)'),
+                   re.compile(r'; or list \w+ in \[input\] accept_units'))
+
+
+def frame_messages(frame, potential=None, interval_minutes: int = 30) -> list:
+    """Unit mix-ups in a caller's frame of canonical columns, as warnings.
+
+    :func:`fluxpart.process` takes a frame in the canonical units and has no
+    ``[input.units]``; a frame built by hand (NEE in mg CO2 m-2 s-1, VPD in kPa, Rg in
+    kW m-2, air temperature in °F) would otherwise change the numbers without a word.
+    The checks of :func:`mixup_messages` run on it and every finding, refusal or
+    suspicion, is returned as a warning naming the conversion
+    (:func:`fluxpart.variables.to_canonical`) in place of the site-config settings.
+    RH as a fraction is named and left out of the VPD checks, which would misread it.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Canonical columns (float) on a DatetimeIndex of interval starts.
+    potential : array_like, optional
+        Potential radiation of each record [W m-2]; enables the Rg check.
+    interval_minutes : int, optional
+        Record interval [minutes].
+
+    Returns
+    -------
+    list of str
+        One line per finding, naming the column and the unit its values look like.
+    """
+    converted = {name: frame[name].to_numpy(dtype=float) for name in frame.columns
+                 if name in READER_VARIABLES and name != "nee_flag"}
+    found = []
+    if "rh" in converted and _rh_fraction(converted["rh"]):
+        del converted["rh"]
+        found.append("column 'rh' (rh, read as %): all values are at most 1.05 %, which no "
+                     "surface air stays below; it looks like a fraction: set [input.units] "
+                     "rh = \"fraction\"")
+    refusals, suspicions = mixup_messages(converted, {}, {name: name for name in converted},
+                                          interval_minutes, potential, (), frame.index)
+    lines = []
+    for message in [*found, *refusals.values(), *suspicions]:
+        message = _UNIT_SETTING.sub(
+            lambda m: (f"convert the column from \"{m[2]}\" to {READER_VARIABLES[m[1]].unit} "
+                       f"(fluxpart.variables.to_canonical(values, {m[1]!r}, \"{m[2]}\""
+                       + (f", interval_minutes={interval_minutes}"
+                          if (m[1], m[2]) in PER_INTERVAL_UNITS else "") + "))"),
+            message)
+        message = _OTHER_UNIT.sub(lambda m: f'or from "{m[2]}"', message)
+        for clause in _ACCEPT_CLAUSES:
+            message = clause.sub("", message)
+        lines.append("frame (process() takes canonical units): "
+                     + message.replace("the file", "the frame"))
+    return lines

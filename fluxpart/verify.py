@@ -244,9 +244,23 @@ class VerifyReport:
 
     @property
     def changed_files(self) -> list[str]:
-        """Files of the folder whose bytes differ from the recorded SHA-256 (named even in
-        the one-line verdict of ``--quiet``)."""
+        """Files of the folder whose bytes differ from the recorded SHA-256."""
         return [d.column for d in self.differences if d.kind == "hash" and d.column]
+
+    @property
+    def folder_changes(self) -> list[str]:
+        """One phrase per file that makes the folder differ from its manifest: changed,
+        missing, damaged, not listed (a stale table, an added note) or the manifest
+        edited (named even in the one-line verdict of ``--quiet``)."""
+        phrases = []
+        for d in self.differences:
+            if d.kind == "hash" and d.column:
+                phrases.append(f"{d.column} changed after it was written")
+            elif d.kind in ("extra", "seal", "format") and d.column:
+                phrases.append(f"{d.column} {d.stored}")
+            elif d.kind == "file" and d.stored and d.table != "input":
+                phrases.append(f"{d.stored} {d.recomputed}".strip())
+        return phrases
 
     @property
     def exit_code(self) -> int:
@@ -1071,9 +1085,8 @@ def command_verify(args) -> int:
     # --quiet: the verdict and the caution, without the per-column detail
     if getattr(args, "quiet", False):
         identity = [line for line in lines if line.startswith("result: ")]
-        changed = report.changed_files
-        headline = lines[0].rstrip(":") + (
-            f" ({', '.join(changed)} changed after it was written)" if changed else "")
+        changed = report.folder_changes
+        headline = lines[0].rstrip(":") + (f" ({'; '.join(changed)})" if changed else "")
         lines = [headline, *identity, lines[-1]]
     print("\n".join(lines))
     return report.exit_code

@@ -425,6 +425,49 @@ def test_key_above_the_first_table_is_named_with_its_table(tmp_path, line, owner
         read_site_config(path)
 
 
+@pytest.mark.parametrize(("where", "line", "owner"),
+                         [("site", "seed = 3", "processing"),
+                          ("site", "time_zone = \"Pacific/Auckland\"", "input"),
+                          ("input", "canopy = \"tall\"", "site"),
+                          ("input", "year_start = \"07-01\"", "processing"),
+                          ("processing", "canopy = \"tall\"", "site"),
+                          ("processing", "missing = [-7999]", "input")])
+def test_setting_in_another_table_is_named_with_its_table(tmp_path, where, line, owner):
+    """A setting written under the wrong table (seed under [site], canopy under
+    [processing]) was called unknown with a list of the table's keys, as if misspelt;
+    now its table is named (review round seven)."""
+    from fluxpart.config import Config
+
+    if where == "processing":
+        path = _site_toml(tmp_path)
+        path.write_text(path.read_text() + line + "\n")
+        read = Config.from_toml
+    else:
+        path = _site_toml(tmp_path, **{"site" if where == "site" else "body_input": line})
+        read = read_site_config
+    key = line.split(" = ")[0]
+    with pytest.raises(ConfigError, match=rf"^\[{where}\] {key} = .*: {key} belongs under "
+                       rf"\[{owner}\], not \[{where}\]: move it there"):
+        read(path)
+
+
+@pytest.mark.parametrize(("where", "line", "pattern"), [
+    ("input", 'flag_accept = ["OK"]', r"flag values are numbers .* recode text flags"),
+    ("columns", 'tsoil = ["t_soil_5", "t_soil_10"]',
+     r"expected one column name; only nee_flag takes a list of columns")])
+def test_text_flag_values_and_a_list_for_one_variable_say_why(tmp_path, where, line,
+                                                               pattern):
+    """flag_accept = ["OK"] was refused as "expected a list of the flag values" (it is
+    one), and a list of two columns for one variable as "expected a non-empty string";
+    each now says what the setting takes (review round seven)."""
+    if where == "input":
+        path = _site_toml(tmp_path, body_input=line)
+    else:
+        path = _site_toml(tmp_path, extra=line)
+    with pytest.raises(ConfigError, match=pattern):
+        read_site_config(path)
+
+
 def test_site_latitude_out_of_range(tmp_path):
     """A latitude beyond ±90 is a ConfigError naming [site] latitude."""
     path = _site_toml(tmp_path)

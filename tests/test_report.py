@@ -722,6 +722,23 @@ def test_a_folder_without_manifest_is_a_clear_error(tmp_path, capsys):
     assert "not a fluxpart result folder" in capsys.readouterr().err
 
 
+def test_the_report_folder_or_a_bundle_given_as_the_result_names_the_result(tmp_path,
+                                                                            capsys):
+    """`fluxpart report out/report` (the page's own folder) or the bundle holding `out/`
+    said only that it is not a result folder; the error names the result folder to give
+    (review round seven)."""
+    out = tmp_path / "bundle" / "out"
+    (out / "report").mkdir(parents=True)
+    (out / "manifest.json").write_text("{}", encoding="utf-8")
+    (out / "report" / "report.html").write_text("<html></html>", encoding="utf-8")
+    with pytest.raises(InputFileError, match=r"it is the report page folder of the result "
+                       rf"folder {re.escape(repr(str(out)))}: give that folder"):
+        build_report(out / "report")
+    assert main(["report", str(tmp_path / "bundle"), "--quiet"]) == 2
+    assert f"it holds the result folder {str(out)!r}: give that folder" in \
+        capsys.readouterr().err
+
+
 def test_a_folder_that_does_not_match_its_manifest_is_refused(folder, tmp_path, capsys):
     """A table changed after writing: one error naming the file, no report written."""
     copy = tmp_path / "tampered"

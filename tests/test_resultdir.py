@@ -293,8 +293,11 @@ def test_result_of_another_site_is_not_replaced(short_result, tmp_path):
     before = read_folder(out)[0]
     other = dataclasses.replace(short_result, site=dataclasses.replace(
         short_result.site, name="Another tower"))
-    with pytest.raises(OutputError, match="holds the result of site .*not of 'Another tower'"):
+    with pytest.raises(OutputError, match="holds the result of site .*not of 'Another tower'"
+                       ) as refused:
         other.write(out)
+    # its fix named once (it ended "...; choose another --out" twice; review round seven)
+    assert str(refused.value).count("choose another --out") == 1
     assert read_folder(out)[0]["seal"] == before["seal"]
     assert _leftovers(out) == []
     short_result.write(out)                                     # the same site: replaced
@@ -559,3 +562,19 @@ def test_result_folder_holding_unlisted_files_is_not_replaced(short_result, tmp_
     assert read_folder(out)[0]["seal"] == before
     (out / ".DS_Store").write_text("")
     short_result.write(out)
+
+
+def test_a_folder_with_another_programs_manifest_is_named_as_not_a_result(tmp_path):
+    """A folder holding another program's manifest.json (JSON, but none of a fluxpart
+    manifest's seal, format and tables) was "manifest.json has no seal ... (and 3 more
+    problem(s); fluxpart verify lists them)", while verify listed none of them; it is
+    named as not a result folder (review round seven)."""
+    import json
+
+    import fluxpart
+
+    (tmp_path / "manifest.json").write_text(json.dumps({"name": "web-app", "version": 2}))
+    with pytest.raises(InputFileError, match=r"manifest\.json is not a fluxpart manifest "
+                       r"\(it has no seal, format or tables\): the folder is not a fluxpart "
+                       r"result folder$"):
+        fluxpart.load(tmp_path)

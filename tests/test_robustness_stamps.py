@@ -336,3 +336,16 @@ def test_stamps_with_decimal_fractions_are_named_for_what_they_are():
     assert decimal_days[1] == "2021 1.02083"
     with pytest.raises(TimestampError, match=r"stamps hold decimal fractions \(a decimal day"):
         _parse(decimal_days, "%Y %j", columns=("Year", "DOY"))
+
+
+def test_stamps_saved_in_scientific_notation_are_named():
+    """A spreadsheet that shows a yyyymmddhhmm column as numbers saves 202101010030 as
+    '2.02101E+11' (six significant digits, Python's '%.5E'): the minutes, hours and days
+    are gone. It was called "decimal fractions (a decimal day of year or hour?)"; now the
+    scientific notation and the lost digits are named (review round seven)."""
+    starts = [datetime(2021, 1, 1) + timedelta(minutes=30 * k) for k in range(1, 97)]
+    saved = [f"{float(t.strftime('%Y%m%d%H%M')):.5E}" for t in starts]
+    assert saved[0] == "2.02101E+11"
+    with pytest.raises(TimestampError, match=r"numbers in scientific notation \('2\.02101E\+11'"
+                                             r"\).*digits are lost"):
+        _parse(saved, "%Y%m%d%H%M")

@@ -309,3 +309,150 @@ def test_storage_with_the_opposite_sign_is_refused(seed):
                                  potential, (), frame.index)
     assert "'co2_storage' (storage)" in refusals["storage"]
     assert "opposite sign" in refusals["storage"]
+
+
+@pytest.fixture(scope="module")
+def demo_frame():
+    from fluxpart import demo
+
+    frame, _ = demo.site_year(seed=2)       # the invented Quillmoor site
+    return frame
+
+
+def test_a_callers_frame_in_another_unit_is_named(demo_frame):
+    """``process`` takes canonical units and has no [input.units]: a frame built by hand
+    with NEE in mg CO2 m-2 s-1 (1 µmol CO2 = 44.01e-3 mg, the molar mass of CO2, IUPAC)
+    gave an annual NEE 23 times too small without a word. The reader's unit checks now
+    run on a caller's frame and name the column and the conversion among the warnings."""
+    import warnings
+
+    import fluxpart
+    from fluxpart import demo
+
+    mg = demo_frame.assign(nee=demo_frame["nee"] * 44.01e-3)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", fluxpart.FluxpartWarning)
+        result = fluxpart.process(mg, demo.SITE, fluxpart.Config(ustar_bootstrap_draws=0))
+    named = [w for w in result.warnings if "process() takes canonical units" in w]
+    assert len(named) == 1, result.warnings
+    assert "column 'nee'" in named[0]
+    assert 'to_canonical(values, \'nee\', "mg CO2 m-2 s-1")' in named[0]
+    assert "[input" not in named[0]           # no site-config setting for a frame
+
+
+@pytest.mark.parametrize("name, factor, unit", [("vpd", 0.1, "kPa"), ("rg", 1e-3, "kW m-2"),
+                                                ("rh", 0.01, "fraction")])
+def test_frame_messages_name_the_conversion(demo_frame, name, factor, unit):
+    """VPD in kPa (1 kPa = 10 hPa), Rg in kW m-2 (1 kW = 1000 W) and RH as a fraction
+    (1 = 100 %) in a caller's frame are each named with the conversion; the canonical
+    frame gives no message."""
+    from fluxpart import demo
+    from fluxpart.solar import potential_radiation
+    from fluxpart.unit_checks import frame_messages
+
+    site = demo.SITE
+    potential = potential_radiation(demo_frame.index, site.latitude, site.longitude,
+                                    site.utc_offset, interval_minutes=30)
+    assert frame_messages(demo_frame, potential, 30) == []
+    changed = demo_frame.assign(**{name: demo_frame[name] * factor})
+    messages = frame_messages(changed, potential, 30)
+    assert len(messages) == 1, messages
+    assert f"column {name!r}" in messages[0] and f'"{unit}"' in messages[0]
+    assert "accept_units" not in messages[0] and "[input" not in messages[0]
+
+
+@pytest.mark.parametrize("true_unit, factor", [("kPa", 0.1), ("hPa", 1.0)])
+@pytest.mark.parametrize("with_rh", [True, False])
+def test_vpd_declared_in_pascal_but_larger_is_refused(demo_frame, true_unit, factor, with_rh):
+    """VPD in kPa (or hPa) declared as Pa reads 1000 (100) times too small (1 kPa =
+    1000 Pa, 1 hPa = 100 Pa, SI): the too-small checks ran only for a VPD declared in hPa,
+    and a kPa file declared "Pa" moved the invented site's daytime Reco by +25 g C m-2
+    without a word (review round seven). Now refused, naming the file's unit."""
+    file_values = demo_frame["vpd"].to_numpy(float) * factor     # hPa -> the file's unit
+    converted = {"vpd": to_canonical(file_values, "vpd", "Pa"),
+                 "tair": demo_frame["tair"].to_numpy(float)}
+    if with_rh:
+        converted["rh"] = demo_frame["rh"].to_numpy(float)
+    refusals, _ = mixup_messages(converted, {"vpd": "Pa"}, {n: n for n in converted}, 30)
+    assert f'set [input.units] vpd = "{true_unit}"' in refusals.get("vpd", ""), refusals
+    right = {**converted, "vpd": to_canonical(file_values, "vpd", true_unit)}
+    refusals, _ = mixup_messages(right, {"vpd": true_unit}, {n: n for n in converted}, 30)
+    assert "vpd" not in refusals
+
+
+@pytest.mark.parametrize("name, unit, canonical_unit, values", [
+    ("rg", "MJ m-2", "W m-2", np.tile([0.0, 150.0, 420.0, 780.0, 390.0, 60.0], 20)),
+    ("nee", "g C m-2", "µmol m-2 s-1", np.tile([3.1, -8.5, -14.2, -6.0, 2.4, 2.9], 20))])
+def test_a_unit_per_interval_declared_for_a_rate_names_the_rate(name, unit, canonical_unit,
+                                                                values):
+    """Rg in W m-2 declared as MJ m-2 per record (1 W m-2 over 3600 s = 0.0036 MJ m-2, SI)
+    or NEE in µmol declared as g C m-2: the hint for the implausible column converted the
+    file's values without the record interval, so the user read "the record interval is
+    needed to convert it" instead of the unit the values have (review round seven)."""
+    from fluxpart.unit_checks import implausible_message
+
+    canonical = to_canonical(values, name, unit, interval_minutes=60)
+    message = implausible_message(name, canonical, values, unit, "col", (-9999,),
+                                  interval_minutes=60)
+    assert f'set [input.units] {name} = "{canonical_unit}"' in message
+
+
+@pytest.mark.parametrize("name", ["tair", "tsoil"])
+def test_celsius_declared_as_fahrenheit_is_refused_naming_celsius(demo_frame, name):
+    """A °C column declared "°F" reads (T - 32) / 1.8 (°F definition): a 20 °C summer at
+    -6.7 °C, inside the plausible range. Air temperature so declared was refused as VPD
+    in the wrong unit (following that hint would have kept the wrong air temperature),
+    and soil temperature passed (review round seven). Now refused naming the temperature
+    and °C; the same column truly in °F passes."""
+    frame = demo_frame
+    converted = {n: frame[n].to_numpy(float) for n in ("nee", "rg", "tair", "vpd", "tsoil")}
+    columns = {n: n for n in converted}
+    wrong = {**converted, name: to_canonical(converted[name], name, "°F")}
+    refusals, _ = mixup_messages(wrong, {name: "°F"}, columns, 30)
+    assert list(refusals) == [name], refusals
+    assert f'set [input.units] {name} = "°C"' in refusals[name]
+    right = {**converted, name: to_canonical(converted[name] * 9 / 5 + 32, name, "°F")}
+    refusals, _ = mixup_messages(right, {name: "°F"}, columns, 30)
+    assert not refusals
+
+
+def test_global_radiation_mapped_as_ppfd_is_refused(demo_frame):
+    """Rg in W m-2 mapped as ppfd is divided by 2.10 µmol J-1 (0.46 PAR share x 4.57
+    µmol J-1, McCree 1972 (m)): the invented site's brightest hours then reach 0.38 of
+    the top-of-atmosphere radiation, where clear skies pass about 0.75 (common practice).
+    It ran without a word, nighttime GPP -22 g C m-2 (review round seven); now refused.
+    The same sunlight as PPFD passes."""
+    from fluxpart import demo
+    from fluxpart.solar import potential_radiation
+
+    site = demo.SITE
+    potential = potential_radiation(demo_frame.index, site.latitude, site.longitude,
+                                    site.utc_offset, interval_minutes=30)
+    base = {n: demo_frame[n].to_numpy(float) for n in ("nee", "tair", "vpd")}
+    columns = {"nee": "nee", "tair": "tair", "vpd": "vpd", "ppfd": "sw_in"}
+    wrong = {**base, "ppfd": demo_frame["rg"].to_numpy(float)}
+    refusals, _ = mixup_messages(wrong, {}, columns, 30, potential)
+    assert "map the column as rg" in refusals.get("ppfd", ""), refusals
+    right = {**base, "ppfd": demo_frame["rg"].to_numpy(float) * 0.46 * 4.57}
+    refusals, warnings = mixup_messages(right, {}, columns, 30, potential)
+    assert "ppfd" not in refusals and not any("ppfd" in w for w in warnings)
+
+
+def test_par_in_watts_mapped_as_rg_is_refused(demo_frame):
+    """PAR in W m-2 is about 0.46 of global radiation (m): mapped as rg, the invented
+    site's brightest hours reach 0.37 of the top-of-atmosphere radiation, where clear
+    skies pass about 0.75 (common practice); it ran without a word (review round seven).
+    Refused now; the site's own Rg passes."""
+    from fluxpart import demo
+    from fluxpart.solar import potential_radiation
+
+    site = demo.SITE
+    potential = potential_radiation(demo_frame.index, site.latitude, site.longitude,
+                                    site.utc_offset, interval_minutes=30)
+    names = ("nee", "rg", "tair", "vpd")
+    converted = {n: demo_frame[n].to_numpy(float) for n in names}
+    refusals, _ = mixup_messages(converted, {}, {n: n for n in names}, 30, potential)
+    assert "rg" not in refusals
+    par = {**converted, "rg": converted["rg"] * 0.46}
+    refusals, _ = mixup_messages(par, {}, {n: n for n in names}, 30, potential)
+    assert "the values look like PAR in W m-2" in refusals.get("rg", ""), refusals

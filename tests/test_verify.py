@@ -564,3 +564,24 @@ def test_one_flipped_byte_is_named_by_its_file_even_quiet(copy, capsys):
     assert first.startswith("NOT reproduced") and "daily.parquet changed" in first
     assert main(["verify", str(copy / "out")]) == 1
     assert "(daily.parquet was changed after it was written)" in capsys.readouterr().out
+
+
+def test_quiet_verdict_names_a_missing_an_unlisted_file_and_an_edited_manifest(copy, capsys):
+    """--quiet named only tables whose bytes changed: a table deleted, a file added by a
+    file manager (.DS_Store) or an edited manifest gave 'NOT reproduced: 1 difference(s)'
+    and no name (review round seven)."""
+    out = copy / "out"
+    (out / ".DS_Store").write_bytes(b"\x00\x00\x00\x01Bud1")
+    assert main(["verify", str(out), "--quiet"]) == 1
+    first = capsys.readouterr().out.splitlines()[0]
+    assert ".DS_Store is not listed in the manifest" in first
+    (out / ".DS_Store").unlink()
+    (out / "daily.parquet").unlink()
+    assert main(["verify", str(out), "--quiet"]) == 1
+    first = capsys.readouterr().out.splitlines()[0]
+    assert "daily.parquet is listed in the manifest but missing" in first
+    manifest = out / "manifest.json"
+    manifest.write_text(manifest.read_text().replace('"seed": 0', '"seed": 1', 1))
+    assert main(["verify", str(out), "--quiet"]) == 1
+    first = capsys.readouterr().out.splitlines()[0]
+    assert "manifest.json was edited after it was written" in first
