@@ -749,6 +749,13 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
 #: 0.38; 0.5 leaves a third for a dirty or partly shaded PPFD sensor and the ±10 % of the
 #: PPFD-to-Rg ratio.
 _PPFD_CLEAR_MIN = 0.5
+#: Days of present values the too-dark check needs before it refuses [days]; shorter
+#: records only warn. A whole sky can stay below half the clear-sky transmission for
+#: weeks: a monsoon's active spell lasts one to three weeks, a wildfire smoke episode
+#: (aerosol optical depth 3 and more) about as long (m); the monsoon's active and break
+#: spells alternate with a period of 30-60 days (the intraseasonal oscillation (m)), so
+#: 60 days hold a break with clear hours.
+_TOO_DARK_MIN_DAYS = 60
 
 
 def _too_dark_message(name: str, converted: dict, units: dict, columns: dict,
@@ -757,8 +764,9 @@ def _too_dark_message(name: str, converted: dict, units: dict, columns: dict,
     in W m-2 mapped as ppfd (divided by 2.10), or PAR in W m-2 (about 0.46 of Rg) mapped
     as rg.
 
-    Returns (refusal, warning) as :func:`_vpd_messages` does: a record of a week or
-    more refuses, a shorter one only warns.
+    Returns (refusal, warning) as :func:`_vpd_messages` does: a record of
+    :data:`_TOO_DARK_MIN_DAYS` days or more refuses, a shorter one (which a spell of
+    overcast or smoke can hold throughout) only warns.
     """
     values = converted.get(name)
     if (values is None or potential is None or (name == "ppfd" and "rg" in converted)
@@ -788,9 +796,10 @@ def _too_dark_message(name: str, converted: dict, units: dict, columns: dict,
                 "(about 0.46 of global radiation) or a shaded or soiled sensor: map global "
                 "(incoming short-wave) radiation as rg, or PPFD as ppfd (or list rg in "
                 "[input] accept_units)")
-    if _enough_days(int(np.isfinite(values).sum()), interval_minutes):
+    if int(np.isfinite(values).sum()) * interval_minutes >= _TOO_DARK_MIN_DAYS * 24 * 60:
         return text, None
-    return None, text
+    return None, (text + f"; over less than {_TOO_DARK_MIN_DAYS} days a sky overcast or "
+                  "smoky throughout (a monsoon spell, a smoke episode) reads so too")
 
 
 def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes: int,

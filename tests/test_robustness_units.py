@@ -456,3 +456,36 @@ def test_par_in_watts_mapped_as_rg_is_refused(demo_frame):
     par = {**converted, "rg": converted["rg"] * 0.46}
     refusals, _ = mixup_messages(par, {}, {n: n for n in names}, 30, potential)
     assert "the values look like PAR in W m-2" in refusals.get("rg", ""), refusals
+
+
+def _overcast_spell(days, seed=0):
+    """Invented correct record of a tower under a monsoon's active spell (22.5° N):
+    global radiation in W m-2 is the top-of-atmosphere radiation times a clear-sky
+    transmittance of 0.75 (common practice) times a daily cloud index of 0.3-0.6."""
+    import pandas as pd
+
+    from fluxpart.solar import potential_radiation
+
+    rng = np.random.default_rng(seed)
+    index = pd.date_range("2023-07-10", periods=days * 48, freq="30min")
+    potential = potential_radiation(index, 22.5, 88.4, 5.5, interval_minutes=30)
+    cloud = rng.uniform(0.3, 0.6, days + 1)[(index - index[0]).days]
+    rg = np.where(potential > 0.0, potential * 0.75 * cloud, rng.uniform(-3.0, 2.0, index.size))
+    hour = index.hour.to_numpy() + index.minute.to_numpy() / 60.0
+    converted = {"rg": rg, "tair": 29.0 + 3.0 * np.cos((hour - 14.5) / 24.0 * 2.0 * np.pi),
+                 "nee": rng.normal(2.0, 1.0, index.size) - 0.01 * rg}
+    return converted, potential
+
+
+def test_a_short_overcast_spell_in_watts_is_not_refused():
+    """A correct Rg in W m-2 over 14 days of a monsoon's active spell (daily cloud index
+    0.3-0.6: its brightest 1 % of high-sun records near 0.47 of the top-of-atmosphere
+    radiation) was refused as PAR mapped as rg. Active spells last one to three weeks and
+    wildfire smoke dims a sky about as long (m): a record that short only warns, naming
+    the overcast; the same sky read as PAR (0.46 of it) over a year is still refused by
+    test_par_in_watts_mapped_as_rg_is_refused."""
+    names = ("nee", "rg", "tair")
+    converted, potential = _overcast_spell(14)
+    refusals, warnings = mixup_messages(converted, {}, {n: n for n in names}, 30, potential)
+    assert "rg" not in refusals, refusals
+    assert any("overcast or smoky" in w for w in warnings), warnings
