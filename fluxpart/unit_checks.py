@@ -97,6 +97,12 @@ _SOIL_ABOVE_AIR = 15.0
 #: is taken for °F: a snow-covered soil near 0 °C under a winter of -25 °C air is 25 K
 #: above the air but never this warm; °F values of a soil at -4 °C or above exceed it.
 _SOIL_FAHRENHEIT_MEDIAN = 25.0
+#: Median soil temperature [°C] at or below which a soil far above the air does not tell
+#: that an air temperature declared °F is in °C: under a lasting snow cover the soil near
+#: the surface stays near 0 °C (the latent heat of its water holds it there) or below,
+#: while the air above falls to -20 °C and less (m); our margin of 5 K covers soil a few
+#: cm deeper, +1 to +3 °C under an early deep snow (m).
+_SNOW_SOIL_MAX = 5.0
 #: Hours after the first sunlit record of a day counted as its morning, when the CO2
 #: stored below the sensor overnight is mixed out and drawn down [h]; our choice: the
 #: morning transition of the boundary layer takes about 2-4 h after sunrise (common
@@ -646,7 +652,9 @@ def _declared_fahrenheit(name: str, converted: dict, columns: dict,
     inside the plausible range. Two measured facts give it away where the values read as
     °C fit and read as °F do not: VPD above the saturation vapour pressure at the air
     temperature (in more than :data:`IMPLAUSIBLE_SHARE` of records), and a soil near the
-    surface more than ``_SOIL_ABOVE_AIR`` K from the air over the same records. A record
+    surface more than ``_SOIL_ABOVE_AIR`` K from the air over the same records (for the
+    air, only where the soil is above ``_SNOW_SOIL_MAX``: a snow cover keeps a soil near
+    0 °C 20 K and more above a winter air, whose °F numbers then lie near the soil's). A record
     truly in °F is not read as °C where a month would be warmer than ``_WARMEST_MONTH``.
     """
     values = converted[name]
@@ -661,7 +669,9 @@ def _declared_fahrenheit(name: str, converted: dict, columns: dict,
         if _enough_days(int(both.sum()), interval_minutes):
             read, written = float(np.median(values[both])), float(np.median(as_celsius[both]))
             reference = float(np.median(other[both]))
-            if (abs(read - reference) > _SOIL_ABOVE_AIR
+            # air far below a soil near 0 °C is a snow cover, in either unit
+            snow = name == "tair" and reference <= _SNOW_SOIL_MAX
+            if (not snow and abs(read - reference) > _SOIL_ABOVE_AIR
                     and abs(written - reference) <= _SOIL_ABOVE_AIR):
                 evidence = (f"its median is {read:.1f} °C, {abs(read - reference):.1f} K from "
                             f"the {'soil' if name == 'tair' else 'air'} temperature's "
