@@ -644,8 +644,8 @@ def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes
             f"tsoil = \"{unit}\" (or list tsoil in [input] accept_units)")
 
 
-def _declared_fahrenheit(name: str, converted: dict, columns: dict,
-                         interval_minutes: int) -> str | None:
+def _declared_fahrenheit(name: str, converted: dict, columns: dict, interval_minutes: int,
+                         snow_soil_max: float = _SNOW_SOIL_MAX) -> str | None:
     """A temperature declared in °F whose file is in °C, or None.
 
     Read as °F, a °C record comes out (T - 32) / 1.8: a summer of 20 °C as -6.7 °C, still
@@ -653,8 +653,9 @@ def _declared_fahrenheit(name: str, converted: dict, columns: dict,
     °C fit and read as °F do not: VPD above the saturation vapour pressure at the air
     temperature (in more than :data:`IMPLAUSIBLE_SHARE` of records), and a soil near the
     surface more than ``_SOIL_ABOVE_AIR`` K from the air over the same records (for the
-    air, only where the soil is above ``_SNOW_SOIL_MAX``: a snow cover keeps a soil near
-    0 °C 20 K and more above a winter air, whose °F numbers then lie near the soil's). A record
+    air, only where the soil is above `snow_soil_max`, default ``_SNOW_SOIL_MAX``: a snow
+    cover keeps a soil near 0 °C 20 K and more above a winter air, whose °F numbers then
+    lie near the soil's; :func:`mixup_messages` warns there). A record
     truly in °F is not read as °C where a month would be warmer than ``_WARMEST_MONTH``.
     """
     values = converted[name]
@@ -670,7 +671,7 @@ def _declared_fahrenheit(name: str, converted: dict, columns: dict,
             read, written = float(np.median(values[both])), float(np.median(as_celsius[both]))
             reference = float(np.median(other[both]))
             # air far below a soil near 0 °C is a snow cover, in either unit
-            snow = name == "tair" and reference <= _SNOW_SOIL_MAX
+            snow = name == "tair" and reference <= snow_soil_max
             if (not snow and abs(read - reference) > _SOIL_ABOVE_AIR
                     and abs(written - reference) <= _SOIL_ABOVE_AIR):
                 evidence = (f"its median is {read:.1f} °C, {abs(read - reference):.1f} K from "
@@ -883,6 +884,14 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
         refuse = _tair_message(converted, units, columns, interval_minutes)
         if refuse:
             refusals["tair"] = refuse
+        elif units.get("tair") in ("°F", "degF") and "tsoil" in converted:
+            # air far below a soil near 0 °C: a snow cover in °F, or °C declared as °F
+            either = _declared_fahrenheit("tair", converted, columns, interval_minutes,
+                                          snow_soil_max=-math.inf)
+            if either:
+                warnings.append(either.split("; the values look like")[0] + (
+                    "; a snow cover holds a soil near 0 °C that far above a winter air, so "
+                    "°F may be right: if the file is in °C, set [input.units] tair = \"°C\""))
         else:   # the soil and VPD checks compare with tair, so need a right tair
             refuse_soil = _tsoil_message(converted, units, columns, interval_minutes)
             if refuse_soil:
