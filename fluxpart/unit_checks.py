@@ -566,15 +566,21 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
                             f"{median:.3g} times the VPD computed from rh and tair: the file "
                             f"is in {unit}: set [input.units] vpd = \"{unit}\" (or list vpd "
                             "in [input] accept_units)"), None
-    if not np.percentile(ratio, 99) < 0.1:
+    # VPD cannot exceed the saturation vapour pressure, so a file in the next larger unit
+    # (factor f) read as the declared one stays below 1/f of it: 0.1 for kPa read as hPa,
+    # 0.01 for hPa read as Pa. A bound of 0.1 for a declared Pa would call a correct rain
+    # spell in Pa (relative humidity 90-100 % for days (m)) hPa.
+    limit = min(0.1, 1.0 / larger[0][0])
+    if not np.percentile(ratio, 99) < limit:
         return None, None
     fits = [unit for factor, unit in larger
             if np.percentile(ratio * factor, 99) >= 0.1
             and np.mean(vpd[both] * factor > 1.1 * saturation + 1.0) <= IMPLAUSIBLE_SHARE]
     unit = fits[0] if fits else larger[0][1]
-    text = (f"column {columns['vpd']!r} (vpd, read as {shown!r}): 99 % of values stay below a "
-            "tenth of the saturation vapour pressure at tair (relative humidity would never "
-            f"drop below 90 %), as VPD in {unit} read as {shown} does; set [input.units] vpd "
+    text = (f"column {columns['vpd']!r} (vpd, read as {shown!r}): 99 % of values stay below "
+            f"{limit:g} of the saturation vapour pressure at tair (relative humidity would "
+            f"never drop below {100.0 * (1.0 - limit):g} %), as VPD in {unit} read as {shown} "
+            "does; set [input.units] vpd "
             f"= \"{unit}\" (or list vpd in [input] accept_units)")
     warm = tair[both] >= 20.0
     # Air at 20 °C or more stays above 90 % relative humidity through whole days only in

@@ -509,3 +509,34 @@ def test_fahrenheit_winter_air_over_a_snow_covered_soil_is_not_refused(air, soil
                                         {"tair": "tair", "tsoil": "tsoil"}, 30)
     assert not refusals, refusals
     assert any("snow cover" in w for w in warnings), warnings
+
+
+@pytest.mark.parametrize("with_rh", [False, True])
+def test_vpd_in_pascal_of_a_saturated_rain_spell_is_not_refused(with_rh):
+    """A correct VPD in Pa over ten warm days of monsoon rain (invented: 24-27 °C,
+    relative humidity 90-100 %, VPD up to about 330 Pa) stays below a tenth of the
+    saturation vapour pressure (Tetens/Magnus, fluxpart.variables) in 99 % of records and
+    was refused as hPa read as Pa. VPD cannot exceed saturation, so hPa read as Pa stays
+    below 0.01 of it: that is the bound now, which the release's
+    test_vpd_declared_in_pascal_but_larger_is_refused still meets."""
+    from fluxpart.variables import saturation_vapour_pressure
+
+    rng = np.random.default_rng(11)
+    records = 10 * 48
+    hour = np.arange(records) % 48 / 2.0
+    afternoon = np.cos((hour - 14.5) / 24.0 * 2.0 * np.pi)
+    tair = 25.5 + 1.5 * afternoon + rng.normal(0.0, 0.3, records)
+    rh = np.clip(95.5 - 4.5 * afternoon + rng.normal(0.0, 0.5, records), 80.0, 100.0)
+    vpd_pa = saturation_vapour_pressure(tair) * (1.0 - rh / 100.0) * 100.0
+    converted = {"tair": tair, "vpd": to_canonical(vpd_pa, "vpd", "Pa")}
+    if with_rh:
+        converted["rh"] = rh
+    names = list(converted)
+    refusals, _ = mixup_messages(converted, {"vpd": "Pa"}, {n: n for n in names}, 30)
+    assert "vpd" not in refusals, refusals
+    wrong = {**converted, "vpd": to_canonical(vpd_pa / 100.0, "vpd", "Pa")}   # hPa as Pa
+    refusals, _ = mixup_messages(wrong, {"vpd": "Pa"}, {n: n for n in names}, 30)
+    # refused; without rh a spell this humid cannot tell hPa from kPa (both stay below
+    # saturation), so either may be named
+    assert ('vpd = "hPa"' in refusals.get("vpd", "") if with_rh
+            else 'set [input.units] vpd = "' in refusals.get("vpd", "")), refusals
