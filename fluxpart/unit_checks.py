@@ -920,22 +920,21 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 lambda part, sun: _rh_fraction(part["rh"]), "rh", columns,
                 "a fraction (all at most 1.05 %, which no surface air stays below for a "
                 "month)", converted, potential, stamps)
-        refuse, warn = _too_dark_message("ppfd", converted, units, columns,
-                                         interval_minutes, potential)
-        if refuse:
-            refusals["ppfd"] = refuse
-        if warn:
-            warnings.append(warn)
+        def too_dark(name):
+            """Rg mapped as ppfd or PAR as rg: a refusal, or a warning on a short record."""
+            refuse, warn = _too_dark_message(name, converted, units, columns,
+                                             interval_minutes, potential)
+            if refuse:
+                refusals[name] = refuse
+            if warn:
+                warnings.append(warn)
+
+        too_dark("ppfd")
         refuse = _rg_message(converted, units, columns, interval_minutes, potential)
         if refuse:
             refusals["rg"] = refuse
         else:
-            refuse, warn = _too_dark_message("rg", converted, units, columns,
-                                             interval_minutes, potential)
-            if refuse:
-                refusals["rg"] = refuse
-            if warn:
-                warnings.append(warn)
+            too_dark("rg")
         if "rg" not in refusals:
             warnings += _changed_within(
                 lambda part, sun: _rg_message(part, units, columns, interval_minutes, sun),
