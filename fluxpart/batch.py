@@ -3,7 +3,7 @@
 A network file (``SITES.toml``, a format of fluxpart's own) lists site configs;
 each site becomes one Dask task that runs
 :func:`fluxpart.pipeline.process_site_config` and writes its result folder
-exactly as ``fluxpart run`` does (:meth:`fluxpart.pipeline.Result.write`).
+exactly as ``fluxpart run`` does (:meth:`fluxpart.result.Result.write`).
 The client then writes the network tables:
 
 - ``<out>/network_annual/``, ``<out>/network_monthly/`` and ``<out>/network_daily/`` —

@@ -4,7 +4,7 @@ A modeller who calibrates or benchmarks a land-surface model wants the series in
 form such models read: NetCDF following the CF conventions, fluxes of carbon in
 kg m-2 s-1, times in UTC with their cell bounds, quality flags that explain
 themselves and the site as global attributes. :func:`to_xarray` builds that
-:class:`xarray.Dataset` from a :class:`~fluxpart.pipeline.Result` (in memory or loaded
+:class:`xarray.Dataset` from a :class:`~fluxpart.result.Result` (in memory or loaded
 from a result folder) and :func:`write_netcdf` writes it.
 
 Layout (one file, two time axes):
@@ -161,7 +161,7 @@ def to_xarray(result):
 
     Parameters
     ----------
-    result : fluxpart.pipeline.Result or path-like
+    result : fluxpart.result.Result or path-like
         A result from :func:`fluxpart.process` or :func:`fluxpart.load`, or a result
         folder (loaded first).
 
@@ -187,7 +187,7 @@ def to_xarray(result):
     """
     xr = _xarray()
     if isinstance(result, (str, os.PathLike)):
-        from .pipeline import load
+        from .result import load
 
         result = load(result)
     series = result.timeseries
@@ -316,7 +316,7 @@ def write_netcdf(result, path) -> Path:
 
     Parameters
     ----------
-    result : fluxpart.pipeline.Result or path-like
+    result : fluxpart.result.Result or path-like
         A result, or a result folder.
     path : path-like
         The NetCDF (netCDF-4) file to write; its folder is created. An existing
@@ -342,7 +342,7 @@ def write_netcdf(result, path) -> Path:
                           "file to write, e.g. result.nc")
     directory = None
     if isinstance(result, (str, os.PathLike)):
-        from .pipeline import load
+        from .result import load
 
         directory, result = Path(result), load(result)
     _check_target(path, result.provenance, directory)

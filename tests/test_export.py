@@ -258,3 +258,28 @@ def test_export_sweeps_the_temporary_file_of_a_killed_export(written_demo, tmp_p
         os.utime(path, (hour_ago, hour_ago))
     assert main(["export", str(folder), "--netcdf", str(tmp_path / "site.nc")]) == 0
     assert sorted(p.name for p in tmp_path.iterdir()) == [other.name, "site.nc"]
+
+
+def test_export_and_load_know_no_orchestrator():
+    """A writer of results reads them through ``fluxpart.result``, not the orchestrator:
+    ``export`` and ``load`` import no pipeline, partitioning or gap-filling module
+    (the contributor guide's seam: writers know no orchestrator and no method)."""
+    import ast
+    import subprocess
+    import sys
+
+    import fluxpart
+
+    root = Path(fluxpart.__file__).parent
+    for name in ("export.py", "result.py"):
+        tree = ast.parse((root / name).read_text(encoding="utf-8"))
+        for node in ast.walk(tree):
+            if isinstance(node, ast.ImportFrom) and node.level == 1:
+                assert (node.module or "") not in ("pipeline", "partition", "gapfill"), \
+                    (name, node.module)
+    code = ("import sys, fluxpart, fluxpart.export; fluxpart.load; "
+            "print(sorted(m for m in sys.modules if m.startswith('fluxpart.')))")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          timeout=60, check=True)
+    loaded = set(eval(done.stdout))
+    assert not loaded & {"fluxpart.pipeline", "fluxpart.gapfill", "fluxpart.partition"}, loaded

@@ -1,0 +1,163 @@
+"""The result of a run: its tables, site, settings, warnings and provenance.
+
+:class:`Result` is what :func:`fluxpart.pipeline.process` returns; :meth:`Result.write`
+writes it as a result folder (:mod:`fluxpart.resultdir`) and :func:`load` reads one
+back. Writers and readers of results (the NetCDF export, the report) use this module,
+not the orchestrator.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import pandas as pd
+
+from .config import Config
+from .site import Site
+
+__all__ = ["TABLES", "Result", "load"]
+
+
+@dataclass(frozen=True)
+class Result:
+    """Everything one run of :func:`process` produced.
+
+    Attributes
+    ----------
+    site : Site
+        The site processed.
+    config : Config
+        The settings used.
+    timeseries : pandas.DataFrame
+        One row per interval (start-stamped DatetimeIndex ``time``): the canonical
+        inputs, solar geometry, screening flags, filled drivers, ``nee_filled`` and
+        its fill columns, ``gpp_nighttime``, ``reco_nighttime``, ``gpp_daytime``,
+        ``reco_daytime`` [µmol m-2 s-1]. ``rejection_reason``, ``nee_fill_method``
+        and the ``*_fill_quality`` columns are labelled categoricals (``"measured"``,
+        ``"A"``, ``"B"``, ``"C"``, ``"unfilled"``; reason names). Units and
+        descriptions: :func:`fluxpart.schema.describe`.
+    daily, monthly, annual : pandas.DataFrame
+        Budgets [g C m-2 per period] with coverage; ``annual`` is indexed by year
+        and carries ``ustar_threshold`` [m s-1] and the u* scenario spread.
+    ustar : pandas.DataFrame
+        u* thresholds per year and season with their bootstrap percentiles [m s-1].
+    audit : pandas.DataFrame
+        Per year: records present, rejected by each screening reason, measured and
+        filled by quality class, and the share of the |NEE| sum measured vs filled.
+    parameters : dict of str to pandas.DataFrame
+        Fitted parameter tables: ``nighttime_e0``, ``nighttime_e0_annual``,
+        ``nighttime_rref``, ``daytime``.
+    screening_counts : pandas.Series
+        Records per screening reason.
+    warnings : tuple of str
+        Things a reader of the budget must know (fall-backs used, methods that
+        disagree, partial years); :func:`process` also issues each through
+        :func:`warnings.warn` as a :class:`~fluxpart.errors.FluxpartWarning`.
+    provenance : dict
+        Input file(s) and their SHA-256 where known, the screening thresholds;
+        ``clock``: the clock and geometry verdict (:meth:`fluxpart.clock.ClockVerdict.to_dict`:
+        status, estimated shift of Rg [min] and its spread, hemisphere) and the
+        ``clock_check`` setting; ``preflight``: the non-fatal findings of
+        :mod:`fluxpart.preflight` (stage: message).
+    """
+
+    site: Site
+    config: Config
+    timeseries: pd.DataFrame
+    daily: pd.DataFrame
+    monthly: pd.DataFrame
+    annual: pd.DataFrame
+    ustar: pd.DataFrame
+    audit: pd.DataFrame
+    parameters: dict
+    screening_counts: pd.Series
+    warnings: tuple = ()
+    provenance: dict = field(default_factory=dict)
+
+    def __repr__(self) -> str:
+        years = ", ".join(str(year) for year in self.annual.index)
+        return (f"<fluxpart.Result {self.site.name!r}, {len(self.timeseries)} records, "
+                f"years {years or 'none'}, {len(self.warnings)} warning(s)>")
+
+    def _repr_html_(self) -> str:
+        import html
+
+        columns = [c for c in ("nee", "gpp_nighttime", "gpp_daytime", "reco_nighttime",
+                               "reco_daytime", "share_measured") if c in self.annual.columns]
+        table = self.annual[columns].to_html(float_format=lambda v: f"{v:.1f}")
+        notes = "".join(f"<li>{html.escape(text)}</li>" for text in self.warnings)
+        return (f"<p><b>fluxpart.Result</b> {html.escape(self.site.name)}: "
+                f"{len(self.timeseries)} records; annual sums [g C m-2]</p>{table}"
+                + (f"<ul>{notes}</ul>" if notes else ""))
+
+    def to_xarray(self):
+        """Return the half-hourly and daily series as a CF-1.10 :class:`xarray.Dataset`.
+
+        Needs the ``netcdf`` extra; see :func:`fluxpart.export.to_xarray`.
+        """
+        from .export import to_xarray
+
+        return to_xarray(self)
+
+    def tables(self) -> dict:
+        """Every table of the result by its file name in a result folder."""
+        tables = {name: getattr(self, name) for name in TABLES}
+        for name, table in self.parameters.items():
+            tables[f"parameters_{name}"] = table
+        counts = self.screening_counts.rename("records").to_frame()
+        counts.index = counts.index.rename("reason")
+        tables["screening"] = counts
+        return tables
+
+    def write(self, directory, *, lock_timeout: float | None = None,
+              lock_held: bool = False) -> Path:
+        """Write the tables and ``manifest.json`` to `directory`, replacing it as a whole.
+
+        See :func:`fluxpart.resultdir.write_folder`: the folder holds either the
+        earlier result or this one, never a mix; a second writer of the same
+        folder waits up to `lock_timeout` seconds (default 600); `lock_held`: the
+        caller holds the folder's lock already. Returns the folder.
+        """
+        from .resultdir import DEFAULT_LOCK_TIMEOUT, write_folder
+
+        return write_folder(directory, self.tables(), site=self.site.to_dict(),
+                            config=self.config.to_dict(), seed=self.config.seed,
+                            provenance=self.provenance, warnings=self.warnings,
+                            lock_timeout=DEFAULT_LOCK_TIMEOUT if lock_timeout is None
+                            else lock_timeout, lock_held=lock_held)
+
+
+#: The tables every result has, by their file names in a result folder.
+TABLES = ("timeseries", "daily", "monthly", "annual", "ustar", "audit")
+
+
+def load(directory) -> Result:
+    """Load a result folder written by :meth:`Result.write`.
+
+    Parameters
+    ----------
+    directory : path-like
+        Folder with ``manifest.json`` and the Parquet tables.
+
+    Returns
+    -------
+    Result
+        The same tables, site and settings that were written.
+
+    Raises
+    ------
+    InputFileError
+        If the folder does not match its manifest (an edited manifest, a table
+        whose bytes changed, a missing or an extra file): the file is named.
+    """
+    from .resultdir import read_folder
+
+    manifest, tables = read_folder(directory)
+    parameters = {name[len("parameters_"):]: table for name, table in tables.items()
+                  if name.startswith("parameters_")}
+    config = Config.from_mapping(manifest["config"], where="manifest config:")
+    return Result(site=Site(**manifest["site"]), config=config,
+                  **{name: tables[name] for name in TABLES},
+                  parameters=parameters, screening_counts=tables["screening"]["records"],
+                  warnings=tuple(manifest["warnings"]), provenance=manifest["provenance"])
