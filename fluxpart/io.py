@@ -178,7 +178,9 @@ class ReadReport:
         Rows dropped because an identical row (same stamp, same value in every
         column read) came earlier in the same file.
     merged_rows : int
-        Rows dropped because an identical row came in another file (overlapping files).
+        Rows dropped because an identical row came in another file (overlapping files),
+        or a row of the same stamp that it completes (cells missing in one file taken
+        from the other; every other cell equal; named in ``warnings``).
     stamp_conversions : dict
         What was done to stamps: ``hour_24`` (read as midnight of the next day),
         ``utc_offset`` (converted from stamps carrying an offset), ``daylight_saving``
@@ -775,6 +777,11 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                              f"{empty[0]!r}); check [input] path")
     parts, absent = _fill_lacking(parts, mapping, time_columns, warnings)
     combined = _combine(parts)
+    if combined["completed_rows"]:
+        warnings.append(f"{combined['completed_rows']} stamp(s) came from two overlapping files "
+                        "whose rows complete each other (a cell missing in one where the "
+                        "other has it, every other cell equal): each read once, every cell "
+                        "from the file that has it")
 
     stamps = combined["stamps"]
     def describe(position):
@@ -1848,6 +1855,35 @@ def _file_list(sources: list) -> str:
     return quoted[0] if len(quoted) == 1 else f"{', '.join(quoted[:-1])} and {quoted[-1]}"
 
 
+def _complete_overlap(stamps, lines, sources, values):
+    """Merge the rows of a stamp that overlapping files give twice where they only complete
+    each other: every column equal or missing in one of them (a logger file copied while a
+    record was being written, a cell missing in one download). Rows that disagree in a
+    value both give are left for :func:`_combine` to refuse. Returns the stamps, lines,
+    sources and values with each such stamp once (the first row's line, every column's
+    value from whichever row has it) and the count of rows merged away.
+    """
+    repeated = pd.Index(stamps).duplicated(keep=False)
+    if not repeated.any():
+        return stamps, lines, sources, values, 0
+    table = pd.DataFrame({name: column[repeated] for name, column in values.items()})
+    groups = pd.Index(stamps[repeated])
+    complementary = (table.groupby(groups).nunique() <= 1).all(axis=1)
+    if not complementary.any():
+        return stamps, lines, sources, values, 0
+    filled = table.groupby(groups).first()          # the first value present in each column
+    joinable = repeated & pd.Index(stamps).isin(complementary.index[complementary])
+    first_of = joinable & ~pd.Index(stamps).duplicated(keep="first")
+    keep = ~joinable | first_of
+    for name in values:
+        column = values[name].copy()
+        column[first_of] = filled.loc[stamps[first_of], name].to_numpy()
+        values[name] = column
+    dropped = int((~keep).sum())
+    return (stamps[keep], lines[keep], sources[keep],
+            {name: column[keep] for name, column in values.items()}, dropped)
+
+
 def _combine(parts: list) -> dict:
     """Join the files' rows in time order; merge identical rows, refuse conflicting ones."""
     names = list(parts[0]["values"])
@@ -1859,7 +1895,7 @@ def _combine(parts: list) -> dict:
     order = np.argsort(stamps, kind="stable")
     stamps, lines, sources = stamps[order], lines[order], sources[order]
     values = {name: column[order] for name, column in values.items()}
-    merged = 0
+    merged = completed = 0
     if len(parts) > 1:
         table = pd.DataFrame(values)
         table.insert(0, "__stamp__", stamps)
@@ -1868,6 +1904,9 @@ def _combine(parts: list) -> dict:
         keep = ~identical
         stamps, lines, sources = stamps[keep], lines[keep], sources[keep]
         values = {name: column[keep] for name, column in values.items()}
+        stamps, lines, sources, values, completed = _complete_overlap(stamps, lines, sources,
+                                                                     values)
+        merged += completed
         repeated = pd.Index(stamps).duplicated(keep=False)
         if repeated.any():
             first = np.flatnonzero(repeated)[:2]
@@ -1887,7 +1926,7 @@ def _combine(parts: list) -> dict:
             conversions[key] = conversions.get(key, 0) + count
     return {
         "stamps": pd.DatetimeIndex(stamps), "lines": lines, "sources": sources,
-        "values": values, "merged_rows": merged,
+        "values": values, "merged_rows": merged, "completed_rows": completed,
         "records_read": sum(part["records_read"] for part in parts),
         "duplicate_rows": sum(part["duplicate_rows"] for part in parts),
         "header_trailing_delimiter": sum(part["header_trailing_delimiter"] for part in parts),

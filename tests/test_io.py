@@ -1818,3 +1818,25 @@ def test_plain_number_columns_read_bit_for_bit_as_pandas_to_numeric():
     got, codes, _ = fio._numbers(padded, "c", "nee", ("NA",), ".", "f.csv", np.arange(3) + 2)
     np.testing.assert_array_equal(got, [1.5, np.nan, 2.25])
     assert codes == 1
+
+
+def test_overlapping_files_whose_rows_complete_each_other_are_merged(tmp_path):
+    """Two downloads of one logger overlap; in the first, the last rows of the overlap lack
+    NEE (the file was copied while those records were written). Every cell equal where
+    both have it, so each stamp is read once with the cell from the file that has it: the
+    frame equals the single file's (known-truth recovery of the reader)."""
+    records = _records(periods=200)
+    early = records.iloc[:120].copy()
+    early.loc[early.index[110:], "co2_flux"] = np.nan   # NEE missing in the first file's last rows
+    first = _write(tmp_path / "a.csv", early)
+    second = _write(tmp_path / "b.csv", records.iloc[100:])
+    frame, report = _read([first, second])
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
+    assert report.merged_rows == 20
+    assert any("10 stamp(s) came from two overlapping files" in w for w in report.warnings)
+    # a value both files give and that differs is still refused
+    clash = records.iloc[:120].copy()
+    clash.loc[clash.index[115], "co2_flux"] += 1.0
+    _write(tmp_path / "a.csv", clash)
+    with pytest.raises(DuplicateTimestampError, match="overlapping files disagree"):
+        _read([first, second])
