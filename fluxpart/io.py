@@ -777,10 +777,11 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                              f"{empty[0]!r}); check [input] path")
     parts, absent = _fill_lacking(parts, mapping, time_columns, warnings)
     combined = _combine(parts)
-    if combined["completed_rows"]:
-        warnings.append(f"{combined['completed_rows']} stamp(s) came from two overlapping files "
-                        "whose rows complete each other (a cell missing in one where the "
-                        "other has it, every other cell equal): each read once, every cell "
+    if combined["completed_stamps"]:
+        warnings.append(f"{combined['completed_stamps']} stamp(s) came from overlapping files "
+                        "whose rows complete each other (a cell missing in one where "
+                        "another has it, every other cell equal; the first "
+                        f"{combined['completed_first']}): each read once, every cell "
                         "from the file that has it")
 
     stamps = combined["stamps"]
@@ -1861,16 +1862,18 @@ def _complete_overlap(stamps, lines, sources, values):
     record was being written, a cell missing in one download). Rows that disagree in a
     value both give are left for :func:`_combine` to refuse. Returns the stamps, lines,
     sources and values with each such stamp once (the first row's line, every column's
-    value from whichever row has it) and the count of rows merged away.
+    value from whichever row has it), the count of rows merged away, the count of
+    stamps so merged and where the first of them was (``"<stamp> on line L of 'a.csv'
+    and line M of 'b.csv'"``; None where none was).
     """
     repeated = pd.Index(stamps).duplicated(keep=False)
     if not repeated.any():
-        return stamps, lines, sources, values, 0
+        return stamps, lines, sources, values, 0, 0, None
     table = pd.DataFrame({name: column[repeated] for name, column in values.items()})
     groups = pd.Index(stamps[repeated])
     complementary = (table.groupby(groups).nunique() <= 1).all(axis=1)
     if not complementary.any():
-        return stamps, lines, sources, values, 0
+        return stamps, lines, sources, values, 0, 0, None
     filled = table.groupby(groups).first()          # the first value present in each column
     joinable = repeated & pd.Index(stamps).isin(complementary.index[complementary])
     first_of = joinable & ~pd.Index(stamps).duplicated(keep="first")
@@ -1880,8 +1883,14 @@ def _complete_overlap(stamps, lines, sources, values):
         column[first_of] = filled.loc[stamps[first_of], name].to_numpy()
         values[name] = column
     dropped = int((~keep).sum())
+    # a stamp in three files drops two rows: the warning counts stamps, and names the
+    # first one's rows
+    first = np.flatnonzero(joinable & (stamps == stamps[np.flatnonzero(first_of)[0]]))
+    where = (f"{pd.Timestamp(stamps[first[0]])} on "
+             + " and ".join(f"line {int(lines[row])} of {sources[row]!r}" for row in first))
     return (stamps[keep], lines[keep], sources[keep],
-            {name: column[keep] for name, column in values.items()}, dropped)
+            {name: column[keep] for name, column in values.items()}, dropped,
+            int(first_of.sum()), where)
 
 
 def _combine(parts: list) -> dict:
@@ -1896,6 +1905,7 @@ def _combine(parts: list) -> dict:
     stamps, lines, sources = stamps[order], lines[order], sources[order]
     values = {name: column[order] for name, column in values.items()}
     merged = completed = 0
+    completed_first = None
     if len(parts) > 1:
         table = pd.DataFrame(values)
         table.insert(0, "__stamp__", stamps)
@@ -1904,9 +1914,9 @@ def _combine(parts: list) -> dict:
         keep = ~identical
         stamps, lines, sources = stamps[keep], lines[keep], sources[keep]
         values = {name: column[keep] for name, column in values.items()}
-        stamps, lines, sources, values, completed = _complete_overlap(stamps, lines, sources,
-                                                                     values)
-        merged += completed
+        (stamps, lines, sources, values, completed_rows, completed,
+         completed_first) = _complete_overlap(stamps, lines, sources, values)
+        merged += completed_rows
         repeated = pd.Index(stamps).duplicated(keep=False)
         if repeated.any():
             first = np.flatnonzero(repeated)[:2]
@@ -1926,7 +1936,8 @@ def _combine(parts: list) -> dict:
             conversions[key] = conversions.get(key, 0) + count
     return {
         "stamps": pd.DatetimeIndex(stamps), "lines": lines, "sources": sources,
-        "values": values, "merged_rows": merged, "completed_rows": completed,
+        "values": values, "merged_rows": merged, "completed_stamps": completed,
+        "completed_first": completed_first,
         "records_read": sum(part["records_read"] for part in parts),
         "duplicate_rows": sum(part["duplicate_rows"] for part in parts),
         "header_trailing_delimiter": sum(part["header_trailing_delimiter"] for part in parts),

@@ -1833,10 +1833,31 @@ def test_overlapping_files_whose_rows_complete_each_other_are_merged(tmp_path):
     frame, report = _read([first, second])
     pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
     assert report.merged_rows == 20
-    assert any("10 stamp(s) came from two overlapping files" in w for w in report.warnings)
+    assert any("10 stamp(s) came from overlapping files" in w for w in report.warnings)
     # a value both files give and that differs is still refused
     clash = records.iloc[:120].copy()
     clash.loc[clash.index[115], "co2_flux"] += 1.0
     _write(tmp_path / "a.csv", clash)
     with pytest.raises(DuplicateTimestampError, match="overlapping files disagree"):
         _read([first, second])
+
+
+def test_completed_overlap_of_three_files_counts_stamps_and_names_the_first(tmp_path):
+    """Three downloads overlap on the same 10 stamps, each lacking another column there
+    (NEE, Rg, air temperature). Each stamp is read once with every cell (the single
+    file's frame); the warning counted the 20 rows merged away as "20 stamp(s) came from
+    two overlapping files" and named no file: it now counts the 10 stamps and names the
+    first one's three lines (review round nine)."""
+    records = _records(periods=200)
+    parts = [records.iloc[:130].copy(), records.iloc[90:150].copy(), records.iloc[100:].copy()]
+    for part, column in zip(parts, ("co2_flux", "sw_in", "t_air"), strict=True):
+        part.loc[records.index[110:120], column] = np.nan
+    paths = [_write(tmp_path / f"{name}.csv", part) for name, part in zip("abc", parts, strict=True)]
+    frame, report = _read(paths[::-1])
+    pd.testing.assert_frame_equal(frame, _plain(tmp_path, records))
+    assert report.merged_rows == 290 - 200                  # rows beyond one per stamp
+    completed = [w for w in report.warnings if "complete each other" in w]
+    assert len(completed) == 1
+    assert completed[0].startswith("10 stamp(s) came from overlapping files")
+    assert (f"the first {records.index[110]} on line 12 of {str(paths[2])!r} and line 22 "
+            f"of {str(paths[1])!r} and line 112 of {str(paths[0])!r}") in completed[0]
