@@ -654,7 +654,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         [1] (0 = kept by the site's flags, 1 = rejected), all float64 with NaN for
         missing values; index: tz-naive DatetimeIndex named ``"time"`` of interval
         starts with a regular frequency, stamps absent from the files inserted as
-        all-NaN rows.
+        all-NaN rows. ``frame.attrs["accept_units"]`` holds `accept_units` where
+        given, so that :func:`fluxpart.process` does not warn again about a unit
+        the file was accepted in.
     report : ReadReport
         What was found and done.
 
@@ -945,6 +947,10 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         accepted_units=tuple(sorted(set(name for name in accepted if name))),
         unit_refusals=tuple(preflight or ()),
     )
+    if accept_units:
+        # read_config -> process: process checks a caller's frame's units again, but not
+        # those the site config accepted as they are
+        frame.attrs["accept_units"] = tuple(accept_units)
     return frame, report
 
 

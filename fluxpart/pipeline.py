@@ -551,6 +551,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     config = _config(config)
     if not isinstance(site, Site):
         raise ConfigError(f"site must be a fluxpart.Site, got {type(site).__name__}")
+    # variables a site config's [input] accept_units kept as they are (a frame of the reader)
+    accepted = tuple(getattr(frame, "attrs", {}).get("accept_units", ()))
     frame, notes = _prepare(frame, site)
     interval = _validate(frame)
     frame, edges = _budget_record(frame, config, interval)
@@ -569,7 +571,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     screened = screens.screened
     if "reader" not in (provenance or {}):      # a caller's frame: no reader checked its units
         warnings.extend(f"input: {text}" for text in unit_checks.frame_messages(
-            frame, geometry["potential_radiation"].to_numpy(), interval))
+            frame, geometry["potential_radiation"].to_numpy(), interval, accept_units=accepted))
     verdict, findings = _clock_and_preflight(frame, site, config, interval, geometry, is_night,
                                              screens, (provenance or {}).get("reader"))
     _refuse(verdict, findings, config)

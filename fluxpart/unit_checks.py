@@ -949,7 +949,8 @@ _ACCEPT_CLAUSES = (re.compile(r' ?\(or list \w+ in \[input\] accept_units[^)]*\)
                    re.compile(r'; or list \w+ in \[input\] accept_units'))
 
 
-def frame_messages(frame, potential=None, interval_minutes: int = 30) -> list:
+def frame_messages(frame, potential=None, interval_minutes: int = 30,
+                   accept_units=()) -> list:
     """Unit mix-ups in a caller's frame of canonical columns, as warnings.
 
     :func:`fluxpart.process` takes a frame in the canonical units and has no
@@ -968,6 +969,10 @@ def frame_messages(frame, potential=None, interval_minutes: int = 30) -> list:
         Potential radiation of each record [W m-2]; enables the Rg check.
     interval_minutes : int, optional
         Record interval [minutes].
+    accept_units : sequence of str, optional
+        Variables a site config's ``[input] accept_units`` kept as they are (a frame of
+        :func:`fluxpart.io.read_table`, whose ``attrs`` carry them): their refusals
+        are left out (the reader warned of them already); suspicions stay.
 
     Returns
     -------
@@ -977,7 +982,7 @@ def frame_messages(frame, potential=None, interval_minutes: int = 30) -> list:
     converted = {name: frame[name].to_numpy(dtype=float) for name in frame.columns
                  if name in READER_VARIABLES and name != "nee_flag"}
     found = []
-    if "rh" in converted and _rh_fraction(converted["rh"]):
+    if "rh" in converted and "rh" not in accept_units and _rh_fraction(converted["rh"]):
         del converted["rh"]
         found.append("column 'rh' (rh, read as %): all values are at most 1.05 %, which no "
                      "surface air stays below; it looks like a fraction: set [input.units] "
@@ -985,7 +990,8 @@ def frame_messages(frame, potential=None, interval_minutes: int = 30) -> list:
     refusals, suspicions = mixup_messages(converted, {}, {name: name for name in converted},
                                           interval_minutes, potential, (), frame.index)
     lines = []
-    for message in [*found, *refusals.values(), *suspicions]:
+    kept = [message for name, message in refusals.items() if name not in accept_units]
+    for message in [*found, *kept, *suspicions]:
         message = _UNIT_SETTING.sub(
             lambda m: (f"convert the column from \"{m[2]}\" to {READER_VARIABLES[m[1]].unit} "
                        f"(fluxpart.variables.to_canonical(values, {m[1]!r}, \"{m[2]}\""

@@ -540,3 +540,39 @@ def test_vpd_in_pascal_of_a_saturated_rain_spell_is_not_refused(with_rh):
     # saturation), so either may be named
     assert ('vpd = "hPa"' in refusals.get("vpd", "") if with_rh
             else 'set [input.units] vpd = "' in refusals.get("vpd", "")), refusals
+
+
+def test_a_unit_the_site_config_accepts_is_not_warned_again_by_process(demo_frame, tmp_path):
+    """The documented route ``frame, site = read_config(toml); process(frame, site)`` ran
+    the reader's unit checks a second time on the frame: a correct NEE of small fluxes
+    (the invented site's NEE times 0.03, µmol m-2 s-1, as over a sparse tundra), which
+    the site config lists in [input] accept_units and the reader keeps as declared, came
+    back among the run's warnings as mg CO2 m-2 s-1 to convert (review round nine)."""
+    import warnings
+
+    import fluxpart
+    from fluxpart import demo
+    from fluxpart.solar import potential_radiation
+    from fluxpart.unit_checks import frame_messages
+
+    site = demo.SITE
+    small = demo_frame.drop(columns="nee_flag").assign(nee=demo_frame["nee"] * 0.03)
+    small.index = small.index.strftime("%Y-%m-%d %H:%M")
+    small.rename_axis("stamp").to_csv(tmp_path / "tundra.csv", na_rep="-9999")
+    (tmp_path / "tundra.toml").write_text(
+        f'[site]\nname = "Sparse fen (fictional)"\nlatitude = {site.latitude}\n'
+        f"longitude = {site.longitude}\nutc_offset = {site.utc_offset}\n"
+        '[input]\npath = "tundra.csv"\ntime_column = "stamp"\n'
+        'time_format = "%Y-%m-%d %H:%M"\ntime_marks = "start"\nmissing = [-9999]\n'
+        'accept_units = ["nee"]\n[input.columns]\n'
+        + "".join(f'{name} = "{name}"\n' for name in small.columns))
+    frame, read_site = fluxpart.read_config(tmp_path / "tundra.toml")
+    potential = potential_radiation(frame.index, site.latitude, site.longitude,
+                                    site.utc_offset, interval_minutes=30)
+    # the finding is there: the frame alone (no accept_units) is named as mg CO2
+    assert any("column 'nee'" in m for m in frame_messages(frame, potential, 30))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", fluxpart.FluxpartWarning)
+        result = fluxpart.process(frame, read_site, fluxpart.Config(ustar_bootstrap_draws=0))
+    assert not [w for w in result.warnings if "process() takes canonical units" in w], \
+        result.warnings
