@@ -588,8 +588,10 @@ def result_identity(manifest: dict) -> str:
     -------
     str
         For example ``seed 0; input tower.csv (sha256 a266f768b503...); site config
-        site.toml (sha256 79a5889d4710...); written by fluxpart 0.12.0``; parts not
-        recorded are left out.
+        site.toml (sha256 79a5889d4710...); written by fluxpart 0.12.0``; several input
+        files are named by the first and their count, with the SHA-256 of their names and
+        hashes (:meth:`fluxpart.io.SiteConfig.input_sha256`); parts not recorded are left
+        out.
     """
     parts = []
     if "seed" in manifest:
@@ -602,7 +604,13 @@ def result_identity(manifest: dict) -> str:
         entry = provenance.get(key)
         if isinstance(entry, dict) and entry.get("sha256"):
             name = Path(str(entry.get("path", "?"))).name
-            parts.append(f"{label} {name} (sha256 {str(entry['sha256'])[:12]}...)")
+            files = entry.get("files") if isinstance(entry.get("files"), list) else []
+            if len(files) > 1:
+                # the hash of several files is of their names and hashes, none file's own
+                parts.append(f"{label} {name} and {len(files) - 1} more file(s) (sha256 of "
+                             f"their names and hashes {str(entry['sha256'])[:12]}...)")
+            else:
+                parts.append(f"{label} {name} (sha256 {str(entry['sha256'])[:12]}...)")
     code = manifest.get("code") if isinstance(manifest.get("code"), dict) else {}
     if code.get("version"):
         parts.append(f"written by fluxpart {code['version']}")

@@ -585,3 +585,27 @@ def test_quiet_verdict_names_a_missing_an_unlisted_file_and_an_edited_manifest(c
     assert main(["verify", str(out), "--quiet"]) == 1
     first = capsys.readouterr().out.splitlines()[0]
     assert "manifest.json was edited after it was written" in first
+
+
+def test_identity_of_several_input_files_does_not_give_the_first_the_lists_hash():
+    """A run of two downloads records the SHA-256 of the files' names and hashes
+    (SiteConfig.input_sha256); verify's 'result:' line printed it as the first file's
+    own ('input a.csv (sha256 8f0e...)'), which `sha256sum a.csv` contradicts. The line
+    now names the count and what the hash is of (review round nine; hashes: hashlib)."""
+    import hashlib
+
+    from fluxpart.verify import result_identity
+
+    own = {name: hashlib.sha256(name.encode()).hexdigest() for name in ("a.csv", "b.csv")}
+    combined = hashlib.sha256("".join(f"{n}\t{h}\n" for n, h in own.items()).encode()
+                              ).hexdigest()
+    manifest = {"seed": 0, "provenance": {"input": {
+        "path": "/data/a.csv", "sha256": combined,
+        "files": [{"path": f"/data/{n}", "sha256": h} for n, h in own.items()]}}}
+    line = result_identity(manifest)
+    assert f"a.csv (sha256 {combined[:12]}" not in line
+    assert (f"input a.csv and 1 more file(s) (sha256 of their names and hashes "
+            f"{combined[:12]}...)") in line
+    single = {"seed": 0, "provenance": {"input": {"path": "/data/a.csv",
+                                                  "sha256": own["a.csv"]}}}
+    assert f"input a.csv (sha256 {own['a.csv'][:12]}...)" in result_identity(single)
