@@ -2275,9 +2275,12 @@ def _conversion_text(conversions: dict) -> str:
         parts.append(f"{conversions['utc_zone']} stamp(s) in {conversions.get('time_zone')} "
                      "moved to local standard time")
     if conversions.get("time_zone") and not conversions.get("utc_zone"):
+        moved = conversions.get("daylight_saving", 0)
+        # a zone without summer time in the record (UTC at a site of offset 0, or a
+        # winter-only file) moves nothing: said so, not "0 stamp(s) moved back"
         parts.append(f"civil time of {conversions['time_zone']}: "
-                     f"{conversions.get('daylight_saving', 0)} daylight-saving stamp(s) moved "
-                     "back one hour")
+                     + (f"{moved} daylight-saving stamp(s) moved back one hour" if moved
+                        else "no daylight-saving stamp, nothing moved"))
     return "; ".join(parts)
 
 

@@ -1861,3 +1861,15 @@ def test_completed_overlap_of_three_files_counts_stamps_and_names_the_first(tmp_
     assert completed[0].startswith("10 stamp(s) came from overlapping files")
     assert (f"the first {records.index[110]} on line 12 of {str(paths[2])!r} and line 22 "
             f"of {str(paths[1])!r} and line 112 of {str(paths[0])!r}") in completed[0]
+
+
+def test_a_zone_without_summer_time_in_the_record_says_nothing_moved():
+    """time_zone = "UTC" at a site of offset 0 (or a winter-only record) moves no stamp; the
+    reader summary said "civil time of UTC: 0 daylight-saving stamp(s) moved back one hour"
+    (review round nine)."""
+    from fluxpart.io import _conversion_text
+
+    text = _conversion_text({"time_zone": "UTC", "daylight_saving": 0})
+    assert text == "civil time of UTC: no daylight-saving stamp, nothing moved"
+    assert "3 daylight-saving stamp(s) moved back one hour" in _conversion_text(
+        {"time_zone": "Europe/Berlin", "daylight_saving": 3})
