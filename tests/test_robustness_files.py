@@ -24,12 +24,18 @@ def example(tmp_path_factory):
     return write_example(tmp_path_factory.mktemp("robust_files"))
 
 
+def _configure(example, config, input_line):
+    """Write the example's site config to `config` with its [input] path line replaced by
+    `input_line` (a path, or a path and further [input] settings)."""
+    config.write_text(example.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', input_line), encoding="utf-8")
+
+
 def _with_records(example, folder, name, records):
     """The example's site config beside `records` (the CSV text) saved as `name`."""
     (folder / name).write_text(records)
     config = folder / f"{Path(name).stem}.toml"
-    config.write_text(example.read_text(encoding="utf-8").replace(
-        'path = "quillmoor_grassland.csv"', f'path = "{name}"'), encoding="utf-8")
+    _configure(example, config, f'path = "{name}"')
     return config
 
 
@@ -74,8 +80,7 @@ def test_compressed_input_is_named_not_blamed_on_encoding(example, tmp_path, cap
         with zipfile.ZipFile(packed, "w", compression=zipfile.ZIP_DEFLATED) as archive:
             archive.writestr("tower.csv", data)
     config = tmp_path / "site.toml"
-    config.write_text(example.read_text(encoding="utf-8").replace(
-        'path = "quillmoor_grassland.csv"', f'path = "{packed.name}"'), encoding="utf-8")
+    _configure(example, config, f'path = "{packed.name}"')
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "[input] path" in line and packed.name in line
@@ -203,8 +208,7 @@ def test_windows_backslash_path_gets_the_forward_slash_hint(example, tmp_path, c
     (tmp_path / "data").mkdir()
     (tmp_path / "data" / "tower.csv").write_bytes(example.with_suffix(".csv").read_bytes())
     config = tmp_path / "site.toml"
-    config.write_text(example.read_text(encoding="utf-8").replace(
-        'path = "quillmoor_grassland.csv"', "path = 'data\\tower.csv'"), encoding="utf-8")
+    _configure(example, config, "path = 'data\\tower.csv'")
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "[input] path" in line and "forward slashes" in line
@@ -225,9 +229,7 @@ def _decimal_comma_example(example, tmp_path, name, solar):
     data = tmp_path / name
     data.write_text("\n".join(rows) + "\n")
     config = tmp_path / f"{Path(name).stem}.toml"
-    config.write_text(example.read_text(encoding="utf-8").replace(
-        'path = "quillmoor_grassland.csv"',
-        f'path = "{name}"\ndelimiter = ";"\ndecimal = ","'), encoding="utf-8")
+    _configure(example, config, f'path = "{name}"\ndelimiter = ";"\ndecimal = ","')
     return config
 
 
@@ -279,9 +281,7 @@ def test_thousands_separator_beside_decimal_point_is_named(example, tmp_path, ca
     data = tmp_path / "points.csv"
     data.write_text("\n".join(rows) + "\n")
     config = tmp_path / "points.toml"
-    config.write_text(example.read_text(encoding="utf-8").replace(
-        'path = "quillmoor_grassland.csv"', 'path = "points.csv"\ndelimiter = ";"'),
-        encoding="utf-8")
+    _configure(example, config, 'path = "points.csv"\ndelimiter = ";"')
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "'solar_down' (rg)" in line and "thousands separator" in line
@@ -327,8 +327,7 @@ def test_utf16_read_as_latin1_names_the_encoding(example, tmp_path, capsys):
     text = example.with_suffix(".csv").read_text()
     (tmp_path / "wide.csv").write_bytes(text.encode("utf-16-le"))
     config = tmp_path / "wide.toml"
-    config.write_text(example.read_text(encoding="utf-8").replace(
-        'path = "quillmoor_grassland.csv"', 'path = "wide.csv"\nencoding = "latin-1"'))
+    _configure(example, config, 'path = "wide.csv"\nencoding = "latin-1"')
     assert main(["check", str(config)]) == 2
     assert 'encoding = "utf-16"' in _one_error(capsys)
 
@@ -338,8 +337,7 @@ def test_home_folder_tilde_in_the_input_path_is_named(example, tmp_path, capsys)
     it and the error showed '<config folder>/~/tower.csv does not exist'."""
     config = tmp_path / "tilde.toml"
     for path in ("~/tower.csv", "~/logger/*.dat"):
-        config.write_text(example.read_text(encoding="utf-8").replace(
-            'path = "quillmoor_grassland.csv"', f'path = "{path}"'), encoding="utf-8")
+        _configure(example, config, f'path = "{path}"')
         assert main(["check", str(config)]) == 2
         error = _one_error(capsys)
         assert f'[input] path = "{path}"' in error and "'~' is not expanded" in error
@@ -383,8 +381,7 @@ def test_header_repeated_mid_file_is_named_at_its_line(example, tmp_path, capsys
     data = tmp_path / "restart.csv"
     data.write_bytes(text.encode("utf-8"))
     config = tmp_path / "restart.toml"
-    config.write_text(example.read_text(encoding="utf-8").replace(
-        'path = "quillmoor_grassland.csv"', f'path = "restart.csv"\n{extra}'), encoding="utf-8")
+    _configure(example, config, f'path = "restart.csv"\n{extra}')
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert f"line {repeated} repeats the header line" in line and "restart.csv" in line
@@ -459,9 +456,7 @@ def test_byte_order_mark_decides_over_a_declared_encoding(example, tmp_path):
     (tmp_path / "th_2.csv").write_bytes(codecs.BOM_UTF8 + second.encode("utf-8"))
     assert "°C".encode("latin-1")[0] == 0xB0
     config = tmp_path / "months.toml"
-    config.write_text(example.read_text(encoding="utf-8").replace(
-        'path = "quillmoor_grassland.csv"',
-        'path = "th_*.csv"\nencoding = "latin-1"\nrows_after_header = 1'), encoding="utf-8")
+    _configure(example, config, 'path = "th_*.csv"\nencoding = "latin-1"\nrows_after_header = 1')
     frame = read_site_config(config).read()[0]
     pd.testing.assert_frame_equal(frame, read_site_config(example).read()[0])
 
@@ -477,8 +472,7 @@ def test_layout_hint_for_one_of_several_files_says_the_setting_reads_them_all(ex
     (tmp_path / "th_2.csv").write_text(
         "\n".join(line.replace(",", ";") for line in [lines[0]] + lines[9000:]) + "\n")
     config = tmp_path / "two.toml"
-    config.write_text(example.read_text(encoding="utf-8").replace(
-        'path = "quillmoor_grassland.csv"', 'path = "th_*.csv"'), encoding="utf-8")
+    _configure(example, config, 'path = "th_*.csv"')
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "th_2.csv" in line and 'delimiter = ";"' in line
@@ -524,9 +518,7 @@ def test_record_skipped_as_a_units_line_is_refused(example, tmp_path, capsys):
     (tmp_path / "th_1.csv").write_text("\n".join([lines[0], units] + lines[1:9000]) + "\n")
     (tmp_path / "th_2.csv").write_text("\n".join([lines[0]] + lines[9000:]) + "\n")
     config = tmp_path / "months.toml"
-    config.write_text(example.read_text(encoding="utf-8").replace(
-        'path = "quillmoor_grassland.csv"', 'path = "th_*.csv"\nrows_after_header = 1'),
-        encoding="utf-8")
+    _configure(example, config, 'path = "th_*.csv"\nrows_after_header = 1')
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "th_2.csv': line 2 (" in line and "rows_after_header = 1, is a record" in line
