@@ -1872,17 +1872,18 @@ def _complete_overlap(stamps, lines, sources, values):
     stamps so merged and where the first of them was (``"<stamp> on line L of 'a.csv'
     and line M of 'b.csv'"``; None where none was).
     """
-    repeated = pd.Index(stamps).duplicated(keep=False)
+    index = pd.Index(stamps)
+    repeated = index.duplicated(keep=False)
     if not repeated.any():
         return stamps, lines, sources, values, 0, 0, None
     table = pd.DataFrame({name: column[repeated] for name, column in values.items()})
-    groups = pd.Index(stamps[repeated])
-    complementary = (table.groupby(groups).nunique() <= 1).all(axis=1)
+    grouped = table.groupby(pd.Index(stamps[repeated]))
+    complementary = (grouped.nunique() <= 1).all(axis=1)
     if not complementary.any():
         return stamps, lines, sources, values, 0, 0, None
-    filled = table.groupby(groups).first()          # the first value present in each column
-    joinable = repeated & pd.Index(stamps).isin(complementary.index[complementary])
-    first_of = joinable & ~pd.Index(stamps).duplicated(keep="first")
+    filled = grouped.first()                        # the first value present in each column
+    joinable = repeated & index.isin(complementary.index[complementary])
+    first_of = joinable & ~index.duplicated(keep="first")
     keep = ~joinable | first_of
     for name in values:
         column = values[name].copy()
