@@ -116,6 +116,19 @@ MIN_LATITUDE_MONTHS = 4
 _DAYLIGHT_SAVING_STEP = 60.0      # minutes: the daylight-saving change of the clock
 
 
+def _daylength_mismatch(used: pd.DataFrame) -> np.ndarray:
+    """Width of each month's Rg envelope minus that of the potential radiation [min].
+
+    A clock error moves sunrise and sunset alike and leaves this unchanged; an
+    obstruction on one side of the day (morning fog, a tree line or building east of
+    the sensor) moves one edge only, so a midpoint moved by s comes with a width
+    changed by about 2 s. NaN where a month has no sunrise and sunset to time.
+    """
+    if "daylength_rg" not in used.columns:
+        return np.full(len(used), np.nan)
+    return (used["daylength_rg"] - used["daylength_potential"]).to_numpy(dtype=float)
+
+
 @dataclass(frozen=True)
 class ClockVerdict:
     """What the clock and geometry check found.
@@ -596,6 +609,20 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
     scores = {**coarse, **fine}
     best_abs = min(scores, key=scores.get)
     best, best_swing = sign * float(best_abs), scores[best_abs]
+    # A latitude sets the day length symmetrically about solar noon: sunrise and sunset
+    # move by the same minutes in opposite directions, the midpoint of the Rg edges stays
+    # put (FAO-56, eq. 34: the sunset hour angle ±ωs). An obstruction on one side only
+    # (a tree line or building east of the sensor, morning fog) moves one edge, so the
+    # midpoint swings by half the width's swing. Called a latitude error only where the
+    # midpoint's swing stays below a quarter of the width's (halfway between 0 and 1/2).
+    edge_swing = float(np.std(usable["edge_shift_minutes"].to_numpy(dtype=float)))
+    if (abs(best - latitude) >= MIN_LATITUDE_ERROR and configured > MIN_DAYLENGTH_SWING
+            and configured > 2.0 * best_swing and edge_swing > 0.25 * configured):
+        return "cannot_judge", (
+            f"latitude not judged: the day lengths of Rg swing {configured:.0f} min against "
+            f"the sun at latitude {latitude:g}, but their rise and fall move unequally "
+            f"(midpoint swing {edge_swing:.0f} min): a sensor shaded, or fog, on one side "
+            "of the day rather than a wrong latitude"), best
     if (abs(best - latitude) >= MIN_LATITUDE_ERROR and configured > MIN_DAYLENGTH_SWING
             and configured > 2.0 * best_swing):
         return "mismatch", (
@@ -656,6 +683,16 @@ def _daylight_saving(used: pd.DataFrame):
     low_months = set(used["month"].to_numpy()[in_low].tolist())
     if high_months & low_months or not _one_block(high_months, low_months):
         return None
+    # A clock one hour ahead keeps the day's length; fog or shade on one side of the day
+    # that moves the peak by an hour shortens it by about two (see _daylength_mismatch).
+    # Called daylight saving only where the later months' day length differs from the
+    # others' by less than one hour, halfway between the two.
+    widths = _daylength_mismatch(used)
+    high_width, low_width = widths[in_high], widths[in_low]
+    if (np.isfinite(high_width).any() and np.isfinite(low_width).any()
+            and abs(np.nanmedian(high_width) - np.nanmedian(low_width))
+            >= _DAYLIGHT_SAVING_STEP):
+        return None
     base = float(np.median(shifts[in_low]))
     return base, sorted(high_months)
 
@@ -673,6 +710,13 @@ def _shifted_run(used: pd.DataFrame, threshold: float):
         off = ((np.abs(peak) >= threshold) & (np.abs(edge) >= threshold)
                & (np.sign(peak) == np.sign(edge))
                & (np.abs(peak - edge) <= np.maximum(10.0, 0.3 * np.abs(peak))))
+        # ... and keep their day length (a clock error does; a morning or evening cut by
+        # fog or shade that moves the peak by s shortens it by about 2 s: halfway, s)
+        widths = _daylength_mismatch(used)
+        reference = widths[~off & np.isfinite(widths)]
+        if reference.size:
+            change = np.abs(widths - np.median(reference))
+            off &= ~(change >= np.abs(peak))
     months = used.index.to_period("M")
     start = 0
     for i in range(1, len(off) + 1):
@@ -887,10 +931,12 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
     if status == "consistent" and hemisphere == "mismatch":
         status = "hemisphere"
     if hemisphere != "mismatch":
-        verdict, detail, _ = check_latitude(index, rg, latitude, longitude, utc_offset,
+        verdict, detail, best_latitude = check_latitude(index, rg, latitude, longitude, utc_offset,
                                             interval, months)
         if verdict == "mismatch":
             problems.append(f"site geometry: {detail}")
             status = "latitude" if status == "consistent" else status
+        elif verdict == "cannot_judge" and np.isfinite(best_latitude):
+            notes.append(detail)
     return ClockVerdict(status, median, spread, len(used), suggested, tuple(problems),
                         tuple(notes), hemisphere, months)

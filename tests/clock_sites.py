@@ -37,7 +37,8 @@ def _clearness(rng, n_days, samples_per_day, mean):
 def synthetic_rg(latitude, longitude, utc_offset, *, year=2021, days=365, interval_minutes=30,
                  seed=0, cloudiness="moderate", tilt_degrees=0.0, tilt_azimuth=90.0,
                  shade_azimuths=None, clock_shift_minutes=0.0, daylight_saving=None,
-                 start_month=1, afternoon_showers=0.0, wet_summer=0.0):
+                 start_month=1, afternoon_showers=0.0, wet_summer=0.0, shade_elevation=20.0,
+                 summer_morning_fog=0.0):
     """A regular record of measured Rg [W m-2] at interval starts, local standard time.
 
     Parameters
@@ -58,7 +59,10 @@ def synthetic_rg(latitude, longitude, utc_offset, *, year=2021, days=365, interv
         Share of days whose afternoons (13-19 h) are darkened by convective cloud.
     shade_azimuths : tuple of (low, high), optional
         The direct beam is blocked while the sun stands in this azimuth range below
-        20 degrees elevation (a tree line or a building).
+        `shade_elevation` degrees (a tree line or a building).
+    summer_morning_fog : float
+        Share of local-summer days (as for `wet_summer`) whose mornings stay foggy
+        (clearness x 0.3) until a time drawn between 9 and 12 h (coastal fog).
     """
     rng = np.random.default_rng(seed)
     fine_minutes = 10 if interval_minutes >= 30 else 5
@@ -76,7 +80,7 @@ def synthetic_rg(latitude, longitude, utc_offset, *, year=2021, days=365, interv
         if shade_azimuths:
             low, high = shade_azimuths
             blocked = ((sun["azimuth"].to_numpy() >= low) & (sun["azimuth"].to_numpy() <= high)
-                       & (sun["elevation"].to_numpy() < 20.0))
+                       & (sun["elevation"].to_numpy() < shade_elevation))
             dni = np.where(blocked, 0.0, dni)
         total = pvlib.irradiance.get_total_irradiance(
             tilt_degrees, tilt_azimuth, sun["apparent_zenith"].to_numpy(),
@@ -90,6 +94,10 @@ def synthetic_rg(latitude, longitude, utc_offset, *, year=2021, days=365, interv
     hour = (local.hour + local.minute / 60.0).to_numpy()
     showers = np.repeat(rng.random(n_days) < afternoon_showers, samples_per_day)
     clearness = np.where(showers & (hour >= 13) & (hour < 19), 0.4 * clearness, clearness)
+    fog_rng = np.random.default_rng([seed, 1])     # its own stream: other records unchanged
+    foggy = np.repeat(fog_rng.random(n_days) < summer_morning_fog, samples_per_day) & summer_month
+    clears = np.repeat(9.0 + 3.0 * fog_rng.random(n_days), samples_per_day)
+    clearness = np.where(foggy & (hour < clears), 0.3 * clearness, clearness)
     rg_fine = pd.Series(ghi * clearness, index=local)
     rg = rg_fine.resample(f"{interval_minutes}min", label="left", closed="left").mean()
     records_per_day = 1440 // interval_minutes

@@ -345,3 +345,47 @@ def test_latitude_check_passes_correct_sites(latitude, longitude, utc_offset, in
         verdict = check_latitude(rg.index, rg.to_numpy(), configured, longitude, utc_offset,
                                  interval)
         assert verdict[0] != "mismatch", verdict[1]
+
+
+@pytest.mark.parametrize("latitude, longitude, utc_offset, interval", [
+    (37.4, -122.4, -8.0, 30),      # summer marine fog on a northern coast
+    (-23.0, 14.5, 1.0, 60),        # the same in a southern summer, hourly
+])
+def test_summer_morning_fog_is_not_daylight_saving(latitude, longitude, utc_offset, interval):
+    """Fog on 95 % of summer mornings, clearing between 9 and 12 h, moves the Rg envelope's
+    peak about an hour later in those months only, as daylight-saving stamps would; but a
+    clock moves sunrise and sunset alike and keeps the day length, while a morning cut
+    shortens it by about twice the shift (day length about solar noon: FAO-56 eq. 34).
+    Stamps were refused as daylight saving before (review, round ten); the same record with
+    true daylight-saving stamps is still refused."""
+    rg = synthetic_rg(latitude, longitude, utc_offset, interval_minutes=interval,
+                      cloudiness="moderate", summer_morning_fog=0.95, seed=4)
+    verdict = _check(rg, latitude, longitude, utc_offset, interval)
+    assert verdict.status == "consistent", verdict.problems
+    assert not verdict.problems
+    months = (4, 11) if latitude > 0 else (10, 4)
+    saving = synthetic_rg(latitude, longitude, utc_offset, interval_minutes=interval,
+                          cloudiness="moderate", summer_morning_fog=0.95, seed=4,
+                          daylight_saving=months)
+    # still refused: named as daylight saving, or (where the fog adds to the saving hour in
+    # the same months) as a clock off in those months
+    wrong = _check(saving, latitude, longitude, utc_offset, interval)
+    assert wrong.status in ("daylight_saving", "shifted") and wrong.problems
+
+
+@pytest.mark.parametrize("elevation", [30.0, 40.0])
+def test_sensor_shaded_in_summer_mornings_is_not_a_wrong_latitude(elevation):
+    """A tree line or building north-east to east of the sensor (azimuth 40-110°, up to 30-40°
+    above the horizon) blocks the direct beam on summer mornings only (the sun rises north
+    of east in summer): the Rg envelope's width then swings through the year as a wrong
+    latitude's would, but only its rise moves. A latitude moves sunrise and sunset
+    symmetrically about solar noon (FAO-56 eq. 34), so the midpoint of the edges stays
+    put. Refused as latitude 29-36° before (review, round ten); named as a note now."""
+    rg = synthetic_rg(48.0, 11.0, 1.0, cloudiness="moderate", shade_azimuths=(40.0, 110.0),
+                      shade_elevation=elevation, seed=3)
+    verdict = _check(rg, 48.0, 11.0, 1.0, 30)
+    assert verdict.status == "consistent", verdict.problems
+    assert any("rise and fall move unequally" in note for note in verdict.notes)
+    # the same sensor at a latitude 19° off is still called wrong where nothing shades it
+    clear = synthetic_rg(48.0, 11.0, 1.0, cloudiness="moderate", seed=3)
+    assert _check(clear, 29.0, 11.0, 1.0, 30).status == "latitude"
