@@ -84,9 +84,11 @@ _MIN_ACTIVE_RECORDS = 24
 #: radiation at night is -30 to -100 W m-2 under a clear sky and near 0 under cloud (m).
 _NIGHT_RG_FLOOR = -20.0
 #: Median air temperature [°C] of 30 days that no place on Earth reaches: the warmest
-#: monthly means measured are about 39 °C (Death Valley in July (m)). Air temperature in
-#: °F read as °C passes it whenever a month is warmer than 5.6 °C (42 °F).
-_WARMEST_MONTH = 42.0
+#: monthly means measured are 42.3 °C (Death Valley, July 2018, 108.1 °F (m)) and about
+#: 42.5 °C (July 2024 (m)), which the former 42 °C refused as °F (review, round ten); 45 °C
+#: leaves 2.5 K for a 30-day window hotter than a calendar month and a hotter year. Air
+#: temperature in °F read as °C passes it whenever a month is warmer than 7.2 °C (45 °F).
+_WARMEST_MONTH = 45.0
 #: Largest excess [K] of the median soil temperature over the median air temperature of
 #: the same records that a soil near the surface shows: the annual mean surface offset is
 #: a few K and reaches about 10 K only under deep, lasting snow (m) (generated site-years
@@ -596,7 +598,7 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
 
     At a cool site (summer maxima near 20 °C, 68 °F) fewer than 5 % of the °F values
     exceed the 60 °C range limit, so the range check only warns, and the whole record
-    would be read 1.8 T + 32 degrees too warm. A month's median above 42 °C gives it away.
+    would be read 1.8 T + 32 degrees too warm. A month's median above 45 °C gives it away.
     """
     tair = converted.get("tair")
     if tair is not None and units.get("tair") in ("°F", "degF"):
@@ -616,7 +618,7 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
     if not _WARMEST_MONTH < warmest <= _WARMEST_MONTH * 9.0 / 5.0 + 32.0:
         return None     # a plausible °C record, or beyond °F too (kelvin: the range check)
     return (f"column {columns['tair']!r} (tair, read as °C): its warmest 30 days have a median "
-            f"of {warmest:.1f} °C, warmer than any month anywhere (about 39 °C at most); the "
+            f"of {warmest:.1f} °C, warmer than any month anywhere (about 42.5 °C at most); the "
             f"values look like °F ({(warmest - 32.0) * 5.0 / 9.0:.1f} °C): set [input.units] "
             "tair = \"°F\" (or list tair in [input] accept_units)")
 

@@ -63,6 +63,14 @@ class Variable:
 # Plausible ranges: our own choices, set wide enough for any ecosystem on Earth
 # and narrow enough to catch unit mix-ups. NEE: the largest half-hourly uptake
 # reported for crops is about -70 µmol m-2 s-1 (common practice), so ±100.
+# VPD: at most the saturation vapour pressure at the top of the air-temperature range,
+# es(60 °C) = 199 hPa (Magnus form of saturation_vapour_pressure): a hot desert afternoon
+# (47-50 °C at 5-8 % relative humidity) reaches 100-120 hPa, which the former limit of 100
+# refused as VPD in Pa (review, round ten); VPD above saturation at the record's own air
+# temperature is caught by fluxpart.unit_checks. Soil temperature: bare desert soil
+# reaches 70-80 °C near the surface in summer (the ground surface above 90 °C in Death
+# Valley (m)), so a probe at 2-5 cm reads 60-70 °C on summer afternoons; soil in °F or K
+# is caught by the soil-against-air check of fluxpart.unit_checks.
 VARIABLES: dict[str, Variable] = {
     v.name: v
     for v in (
@@ -71,9 +79,9 @@ VARIABLES: dict[str, Variable] = {
                  "to the atmosphere", -100.0, 100.0, True),
         Variable("rg", "W m-2", "global (incoming short-wave) radiation", -50.0, 1500.0, True),
         Variable("tair", "°C", "air temperature", -60.0, 60.0, True),
-        Variable("vpd", "hPa", "vapour pressure deficit", -1.0, 100.0, True),
+        Variable("vpd", "hPa", "vapour pressure deficit", -1.0, 200.0, True),
         Variable("ustar", "m s-1", "friction velocity", 0.0, 5.0, True),
-        Variable("tsoil", "°C", "soil temperature", -50.0, 60.0, False),
+        Variable("tsoil", "°C", "soil temperature", -50.0, 80.0, False),
         Variable("rh", "%", "relative humidity", 0.0, 110.0, False),
         Variable("nee_flag", "1", "the site's own quality flag; non-zero = reject",
                  -np.inf, np.inf, False),

@@ -7,8 +7,8 @@ the length of a record interval (1800 s for half-hourly, 3600 s for hourly).
 import numpy as np
 import pytest
 
-from fluxpart.unit_checks import mixup_messages
-from fluxpart.variables import to_canonical
+from fluxpart.unit_checks import IMPLAUSIBLE_SHARE, implausible_message, mixup_messages
+from fluxpart.variables import saturation_vapour_pressure, to_canonical
 
 
 @pytest.mark.parametrize("minutes", [30, 60])
@@ -98,7 +98,7 @@ def test_fahrenheit_air_temperature_of_a_cool_site_refused(seed):
     the 60 °C range limit, so the range check only warned and the record was read 1.8 T + 32
     too warm; VPD checks then blamed VPD's unit. Refused naming tair and °F, VPD left alone.
     Facts: °F = 9/5 °C + 32 (NIST SP 811 (m)); the warmest monthly mean air temperatures
-    measured are about 39 °C (Death Valley, July (m)). Correct records and kelvin pass it."""
+    measured are 42.3 °C (Death Valley, July 2018 (m)). Correct records and kelvin pass it."""
     from fluxpart import scenarios
 
     year = scenarios.generate(seed)
@@ -576,3 +576,32 @@ def test_a_unit_the_site_config_accepts_is_not_warned_again_by_process(demo_fram
         result = fluxpart.process(frame, read_site, fluxpart.Config(ustar_bootstrap_draws=0))
     assert not [w for w in result.warnings if "process() takes canonical units" in w], \
         result.warnings
+
+
+def test_hot_desert_summer_is_not_refused():
+    """A hot-desert summer in the right units: air at a 30-day mean of 42.5 °C (Death Valley
+    averaged 42.3 °C in July 2018 (m)), afternoons of 47-48 °C at 5-8 % relative humidity
+    (VPD = es(T)(1 - RH), Magnus form: 100-110 hPa) and a bare soil at 5 cm reaching 62-66 °C
+    (the ground surface there exceeds 90 °C (m)). The reader refused tair as °F, VPD as Pa
+    and tsoil as °F before (review, round ten). The same record in °F, in Pa (VPD) and in K
+    (soil) is still refused."""
+    days = 30
+    hours = np.arange(days * 48) / 2.0
+    diurnal = np.cos(2 * np.pi * (hours - 15.0) / 24.0)
+    rng = np.random.default_rng(7)
+    tair = 42.5 + 6.0 * diurnal + 0.5 * rng.standard_normal(hours.size)
+    rh = 11.0 - 4.0 * diurnal
+    vpd = saturation_vapour_pressure(tair) * (1.0 - rh / 100.0)
+    tsoil = 47.0 + 17.0 * np.cos(2 * np.pi * (hours - 14.0) / 24.0)
+    assert np.mean(vpd > 100.0) > IMPLAUSIBLE_SHARE and np.mean(tsoil > 60.0) > 0.2
+    columns = {"tair": "t", "vpd": "d", "tsoil": "s", "rh": "h"}
+    converted = {"tair": tair, "vpd": vpd, "tsoil": tsoil, "rh": rh}
+    for name, values in converted.items():
+        assert implausible_message(name, values, values, None, columns[name], ()) is None
+    refusals, warnings = mixup_messages(converted, {}, columns, 30)
+    assert refusals == {} and not any("[input.units]" in w for w in warnings)
+    fahrenheit = dict(converted, tair=tair * 9 / 5 + 32)
+    refusals, _ = mixup_messages(fahrenheit, {}, columns, 30)
+    assert "tair" in refusals
+    assert implausible_message("vpd", vpd * 100.0, vpd * 100.0, None, "d", ()) is not None
+    assert implausible_message("tsoil", tsoil + 273.15, tsoil + 273.15, None, "s", ()) is not None
