@@ -627,7 +627,7 @@ def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes
     """Soil temperature in °F or K read as °C, where few values leave the plausible range.
 
     Near the surface the soil follows the air: over the same records their medians differ
-    by a few K. A soil of a cool site in °F (32-59) passes the 60 °C range limit and would
+    by a few K. A soil of a cool site in °F (32-59) passes the 80 °C range limit and would
     be read 30 K or more above the air, a respiration driver 1.8 T + 32 too warm.
     """
     tsoil, tair = converted.get("tsoil"), converted.get("tair")
