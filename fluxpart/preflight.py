@@ -103,6 +103,12 @@ _DISTINCT_VALUES = 3          # fewer distinct present values than this is "cons
 _STUCK = {"nee": (1.0, ()), "rg": (1.0, ()), "ustar": (1.0, ()), "tair": (2.0, ()),
           "tsoil": (2.0, (0.0,)), "vpd": (2.0, (0.0,)), "rh": (2.0, (100.0,))}
 _STUCK_SUN_UP = 200.0
+# Soil held in the zero curtain under snow [°C]: freezing soil water stays at its freezing
+# point for weeks to months, a few tenths of a K below 0 (solutes and capillarity depress
+# it (m)), and a probe reads it within its accuracy of about ±0.2 K (m); a logger at 0.1 K
+# resolution then repeats -0.1 or -0.2 as naturally as 0. A soil value this close to 0
+# is not called stuck.
+_ZERO_CURTAIN = 0.5
 # Repeated records (our choice): a day or more of consecutive records whose NEE and
 # every driver read equal, value for value, the records a fixed lag of a day or more
 # earlier. Measured records never repeat so (the last digits of a flux and a
@@ -232,7 +238,7 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
         stuck = []
         for positions in _runs(values, min_length=days_needed * per_day):
             value = values[positions[0]]
-            if value in natural:
+            if value in natural or (name == "tsoil" and abs(value) <= _ZERO_CURTAIN):
                 continue
             sunlit = int(sun_up[positions].sum())
             if name == "rg" and sunlit < _STUCK_SUNLIT_RECORDS:

@@ -50,6 +50,21 @@ def test_stuck_air_temperature_needs_two_days(year, hours, found):
     assert bool(_stuck(broken, potential, 30)) is found
 
 
+@pytest.mark.parametrize("value, found", [(0.0, False), (-0.1, False), (-0.2, False),
+                                          (0.1, False), (4.5, True), (-3.0, True)])
+def test_soil_in_the_zero_curtain_is_not_stuck(year, value, found):
+    """Soil under snow held at the freezing point of its water for weeks (the zero curtain,
+    a few tenths of a K below 0 (m)) repeats -0.1 or -0.2 at a logger's 0.1 K resolution as
+    naturally as 0; it was called a stuck sensor, with the advice to delete it (review,
+    round ten). A soil repeating a value away from 0 for days is still named."""
+    frame, _, potential = year
+    held = frame.copy()
+    winter = (held.index >= "2021-01-05") & (held.index < "2021-02-20")
+    held.loc[winter, "tsoil"] = value
+    findings = [f for f in _stuck(held, potential, 30) if f.stage == "input (tsoil)"]
+    assert bool(findings) is found
+
+
 def test_polar_night_zero_rg_is_not_stuck(year):
     """Rg = 0 for weeks where the sun never rises (potential radiation 0) is correct."""
     frame, _, potential = year
