@@ -805,3 +805,19 @@ def test_standard_errors_of_an_unconstrained_parameter_are_infinite_without_a_wa
         warnings.simplefilter("error")
         errors, _ = daytime._standard_errors(theta, fixed, lower, upper, windows, mask, vpd0)
     assert np.isposinf(errors[0, 2])
+
+
+def test_records_at_or_below_t0_take_zero_respiration():
+    """Temperature below T0 = 227.13 K (-46.02 °C) for three winter days with no NEE
+    measured: Lloyd & Taylor (1994) eq. 11 falls to 0 as T approaches T0 (where respiration
+    vanishes) and is undefined beyond. Those records' daytime Reco was NaN, which made the
+    year's daytime Reco NaN (review, round ten); they take the limit, 0, now."""
+    record = _synthetic_record(1)
+    inputs = _inputs(record)
+    spell = (record["index"] >= "2023-01-20") & (record["index"] < "2023-01-23")
+    assert spell.sum() == 144
+    inputs["temperature"] = np.where(spell, -50.0, record["temperature"])
+    inputs["nee_measured"] = np.where(spell, np.nan, record["nee_measured"])
+    result = partition_daytime(**inputs)
+    assert np.all(result.reco[spell] == 0.0)
+    assert np.isfinite(result.reco).all()

@@ -651,3 +651,22 @@ def test_low_light_rule_leaves_short_runs_to_interpolation():
     assert low.any() and (centre_days[low] > 40).all() and (centre_days[low] < 64).all()
     # the window wholly inside the 8-day gap (centre day 25.5) is left out: interpolated
     assert 25.5 not in centre_days and not (low & (centre_days < 40)).any()
+
+
+def test_records_at_or_below_t0_get_the_equations_limit_zero(rng):
+    """Air below T0 = 227.13 K (-46.02 °C; a Siberian cold spell): Lloyd & Taylor (1994)
+    eq. 11 falls to 0 as T approaches T0 (T0 is where respiration vanishes), while the
+    formula itself is undefined there. Those records' Reco was NaN, which made the year's
+    nighttime Reco and GPP NaN without a word (review, round ten): they now take the
+    limit, 0, and every other record is unchanged. Temperatures above T0 in the fits."""
+    index, nee, filled, temperature, night, _ = _synthetic(rng, e0=220.0)
+    fit = partition_nighttime(index, nee, filled, temperature, temperature, night)
+    cold = temperature.copy()
+    spell = (index >= "2021-01-20") & (index < "2021-01-23")
+    cold[spell] = -50.0
+    result = apply_fit(fit, filled, cold)
+    assert np.all(result.reco[spell] == 0.0)
+    assert np.isfinite(result.reco).all() and np.isfinite(result.gpp).all()
+    np.testing.assert_array_equal(result.reco[~spell], fit.reco[~spell])
+    # just above T0 the equation itself is tiny already
+    assert _eq11(-46.0, 2.0, 220.0) < 1e-80

@@ -561,6 +561,11 @@ def _partition(data, weight, settings) -> dict:
                  else (1.0 - share) * window_e0[before] + share * window_e0[after])
     gpp = np.zeros(len(days))
     reco = np.zeros(len(days))
+    # At or below T0 (-46.02 °C) Lloyd-Taylor respiration has reached its limit, 0 (T0 is
+    # the temperature at which respiration vanishes, Lloyd & Taylor 1994); the fits leave
+    # such records out (their term is NaN), the fluxes take the limit: exp(E0 x -inf) = 0
+    arrhenius = np.where(np.isfinite(data["temperature"]) & np.isnan(arrhenius), -np.inf,
+                         arrhenius)
     # Fluxes, not parameters, are interpolated: each record takes the time-weighted
     # mean of the two neighbouring windows' curves, so it never gets a curve that
     # neither window fitted (alpha of one with beta0 of the other).

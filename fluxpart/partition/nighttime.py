@@ -1219,6 +1219,13 @@ def _respiration(rref, e0, nee_filled, temperature_filled, e0_windows, e0_annual
                  rref_windows, respiration_driver) -> NighttimeResult:
     """Step 3 of :func:`partition_nighttime`: Reco and GPP of fitted Rref and E0."""
     reco = lloyd_taylor(temperature_filled, rref, e0)
+    # At or below T0 (-46.02 °C, air over a Siberian or Antarctic winter) the equation's
+    # respiration has reached its limit, 0: T0 is the temperature at which respiration
+    # vanishes (Lloyd & Taylor 1994). Left NaN, a few such records made the year's Reco
+    # and GPP NaN without a word (review, round ten).
+    kelvin = np.asarray(temperature_filled, dtype=float) + KELVIN_OFFSET
+    reco = np.where((kelvin <= LLOYD_TAYLOR_T0_KELVIN) & np.isfinite(rref) & np.isfinite(e0),
+                    0.0, reco)
     gpp = reco - nee_filled
     return NighttimeResult(reco=reco, gpp=gpp, rref=rref, e0=e0, e0_windows=e0_windows,
                            e0_annual=e0_annual, rref_windows=rref_windows,
