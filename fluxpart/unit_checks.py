@@ -375,6 +375,21 @@ def _reversed_sign(nee: np.ndarray, night: np.ndarray, active: np.ndarray):
     return night_median, low, high
 
 
+def _night_median(converted: dict, potential) -> float:
+    """Median NEE of the records without sun [µmol m-2 s-1]; NaN where it cannot be told."""
+    nee = converted.get("nee")
+    if nee is None:
+        return math.nan
+    if potential is not None:
+        night = np.asarray(potential) <= 0.0
+    elif converted.get("rg") is not None:
+        night = converted["rg"] < 10.0
+    else:
+        return math.nan
+    values = nee[night & np.isfinite(nee)]
+    return float(np.median(values)) if values.size else math.nan
+
+
 def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, potential=None):
     """NEE with the opposite sign (uptake positive, e.g. NEP mapped as ``nee``).
 
@@ -878,8 +893,12 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
             if warn:
                 warnings.append(warn)
             # a sign that changed within the record: months with both backwards (a month
-            # holds fewer records to tell by, so this only warns)
-            if not (refuse or warn):
+            # holds fewer records to tell by, so this only warns). A changed sign turns the
+            # night's sign against the rest of the record's, so only a record whose nights
+            # are a release overall is searched: where they are an uptake throughout (a
+            # desert's nights with abiotic uptake (m)), a month of rain-pulse release by day
+            # is not a changed sign
+            if not (refuse or warn) and _night_median(converted, potential) >= 0.0:
                 warnings += _changed_within(
                     lambda part, sun: _nee_sign_message(part, columns, interval_minutes,
                                                         sun)[0],

@@ -122,3 +122,45 @@ def test_cli_check_names_a_season_with_reversed_sign(tmp_path, capsys):
     out = capsys.readouterr().out
     assert "'co2_exchange' (nee): in " in out and "2021-08" in out
     assert "may have changed within the record" in out
+
+
+def test_desert_nights_of_uptake_with_a_rain_pulse_month_are_not_a_changed_sign():
+    """A desert whose nights show a small uptake throughout (abiotic CO2 uptake by
+    alkaline soils, reported for Mojave and central-Asian deserts (m)) and whose August
+    holds a rain pulse (the release after wetting, by day up to several µmol m-2 s-1, with
+    little photosynthesis): August alone has a negative night median and a long release
+    tail, and was named as a month whose sign may have changed, with the advice to correct
+    it (review, round ten). A changed sign turns the night's sign against the rest of the
+    record; here every month's nights are uptake, so nothing changed. Invented record."""
+    import numpy as np
+    import pandas as pd
+
+    from fluxpart.solar import potential_radiation
+
+    rng = np.random.default_rng(3)
+    index = pd.date_range("2021-06-01", "2021-09-30 23:30", freq="30min")
+    potential = potential_radiation(index, 35.0, -115.9, -8.0, 30)
+    days = np.asarray((index - index[0]) / pd.Timedelta(days=1))
+    hour = index.hour.to_numpy() + index.minute.to_numpy() / 60.0
+    tair = 32.0 + 8.0 * np.cos(2 * np.pi * (hour - 15.0) / 24.0)
+    rg = 0.78 * potential
+    pulse = np.zeros(index.size)
+    for start in (66.0, 72.0):                                # two rains in August
+        pulse += np.where(days >= start, 6.0 * np.exp(-(days - start) / 1.5), 0.0)
+    base = np.where(potential > 0, -0.6 * np.clip(potential / 1300.0, 0, 1), -0.25)
+    nee = base + pulse * np.where(potential > 0, 1.3, 0.5) + rng.laplace(0, 0.2, index.size)
+    converted = {"nee": nee, "rg": rg, "tair": tair}
+    columns = {name: name for name in converted}
+    august = index.month == 8
+    assert np.median(nee[august & (potential <= 0)]) < 0 < np.percentile(
+        nee[august & (rg > 300)], 95) - 3.0
+    refusals, warnings = mixup_messages(converted, {}, columns, 30, potential, (), index)
+    assert "nee" not in refusals
+    assert not any("may have changed within the record" in w for w in warnings), warnings
+    # a vegetated record (nights a release) with August reversed is still named
+    vegetated = np.where(potential > 0, -6.0 * np.clip(potential / 1300.0, 0, 1), 2.0) \
+        + rng.laplace(0, 0.3, index.size)
+    vegetated = np.where(august, -vegetated, vegetated)
+    _, warnings = mixup_messages(dict(converted, nee=vegetated), {}, columns, 30, potential,
+                                 (), index)
+    assert any("may have changed within the record" in w and "2021-08" in w for w in warnings)
