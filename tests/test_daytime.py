@@ -821,3 +821,35 @@ def test_records_at_or_below_t0_take_zero_respiration():
     result = partition_daytime(**inputs)
     assert np.all(result.reco[spell] == 0.0)
     assert np.isfinite(result.reco).all()
+
+
+def test_a_respiration_curve_beyond_any_measurable_flux_is_rejected():
+    """Near T0 (-46.02 °C) the Lloyd & Taylor (1994) eq. 11 factor is tiny: a window whose
+    night NEE at -43 °C gave Rref 1e7 µmol m-2 s-1 predicts, at records of -30 °C between
+    its centre and the next window's, respiration far above the ±100 µmol m-2 s-1 any
+    tower measures (the plausible-range limit of fluxpart.variables). That window is
+    rejected, with its reason; curves within the range are left in use."""
+    from fluxpart.constants import LLOYD_TAYLOR_T0_KELVIN, LLOYD_TAYLOR_TREF_KELVIN
+    from fluxpart.partition import daytime
+
+    days = np.arange(0.0, 8.0, 1.0 / 48.0)
+    temperature = np.where(days < 3.0, -43.0, -30.0)
+    arrhenius = daytime._arrhenius(temperature, LLOYD_TAYLOR_TREF_KELVIN,
+                                   LLOYD_TAYLOR_T0_KELVIN)
+    centres = np.array([1.0, 3.0, 5.0, 7.0])
+    theta = np.zeros((4, 4))
+    theta[:, 3] = [2.0, 1e7, 2.0, 2.0]           # Rref per window
+    e0 = np.full(4, 150.0)
+    status = np.array(["accepted", "replaced", "accepted", "accepted"], dtype=object)
+    reason = np.array(["", "rref at zero; refit with night rref", "", ""], dtype=object)
+    new_status, new_reason = daytime._reject_runaway_curves(
+        status, reason, theta, e0, days, centres, arrhenius, None)
+    assert list(new_status) == ["accepted", "rejected", "accepted", "accepted"]
+    assert new_reason[1].startswith("rref at zero; refit with night rref; respiration curve "
+                                    "above 100")
+    assert list(status) == ["accepted", "replaced", "accepted", "accepted"]   # not modified
+    # the rejected curve did exceed the range at a record it applied to (days 1-5)
+    applied = (days > 1.0) & (days < 5.0)
+    assert (1e7 * np.exp(150.0 * arrhenius[applied])).max() > 100.0
+    # Rref 2 stays within the range everywhere: nothing else rejected
+    assert (2.0 * np.exp(150.0 * arrhenius)).max() < 100.0

@@ -670,3 +670,23 @@ def test_records_at_or_below_t0_get_the_equations_limit_zero(rng):
     np.testing.assert_array_equal(result.reco[~spell], fit.reco[~spell])
     # just above T0 the equation itself is tiny already
     assert _eq11(-46.0, 2.0, 220.0) < 1e-80
+
+
+def test_records_below_t0_are_left_out_of_the_fits(rng):
+    """Below T0 (-46.02 °C) Lloyd & Taylor (1994) eq. 11 has no respiration to fit and
+    1/(T - T0) changes sign; such records used to enter the E0 profile with a large
+    positive temperature term and dominate it. Night records at -50 °C added to a record
+    leave the fit exactly as it is without them."""
+    index, nee, filled, temperature, night, _ = _synthetic(rng, e0=220.0)
+    base = partition_nighttime(index, nee, filled, temperature, temperature, night)
+    cold_nights = night & (index >= "2021-02-01") & (index < "2021-02-04")
+    cold_temperature = np.where(cold_nights, -50.0, temperature)
+    cold_nee = np.where(cold_nights, 0.3, nee)
+    plain_nee = np.where(cold_nights, np.nan, nee)
+    with_cold = partition_nighttime(index, cold_nee, filled, cold_temperature,
+                                    cold_temperature, night)
+    without = partition_nighttime(index, plain_nee, filled, cold_temperature,
+                                  cold_temperature, night)
+    assert with_cold.e0_annual.equals(without.e0_annual)
+    np.testing.assert_array_equal(with_cold.reco, without.reco)
+    assert abs(with_cold.e0_annual["e0"].iloc[0] - base.e0_annual["e0"].iloc[0]) < 30.0

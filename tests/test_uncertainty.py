@@ -483,6 +483,25 @@ def test_driver_weight_favours_the_temperature_that_fits_the_night_data():
     assert driver_weight(nee[:5], night[:5], truth[:5], worse[:5]) == 0.0
 
 
+def test_laplace_delta_bic_is_the_difference_of_scipys_laplace_log_likelihoods():
+    """ΔBIC under Laplace errors = -2 (ln L_model - ln L_reference) + k ln n, each ln L the
+    maximised Laplace log-likelihood (scale = mean |residual|; scipy.stats.laplace)."""
+    from scipy import stats
+
+    from fluxpart.uncertainty import laplace_delta_bic
+
+    rng = np.random.default_rng(11)
+    model, reference = rng.laplace(0, 0.4, 300), rng.laplace(0, 0.5, 300)
+
+    def log_likelihood(residual):
+        return stats.laplace.logpdf(residual, loc=0.0, scale=np.mean(np.abs(residual))).sum()
+
+    expected = -2.0 * (log_likelihood(model) - log_likelihood(reference)) + np.log(300)
+    got = laplace_delta_bic(np.abs(model).sum(), np.abs(reference).sum(), 300,
+                            extra_parameters=1)
+    assert got == pytest.approx(expected, rel=1e-10)
+
+
 def test_window_at_zero_takes_the_typical_relative_error_not_se_over_value():
     """A window Rref of 1e-5 ± 0.15 (a fit pressed against Rref = 0) would give a
     relative error of 15000; it takes the median se/value of the resolved windows

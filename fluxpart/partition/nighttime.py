@@ -351,8 +351,18 @@ def _fit_lloyd_taylor(temperature, flux, mask, counts):
 # E0 windows
 # --------------------------------------------------------------------------- #
 def _usable(nee, temperature, is_night):
-    """Night records with measured NEE and temperature."""
-    return is_night & np.isfinite(nee) & np.isfinite(temperature)
+    """Night records with measured NEE and a temperature above T0.
+
+    At or below T0 (-46.02 °C) Lloyd & Taylor's (1994) eq. 11 has no respiration left
+    to fit: its limit there is 0, and below it ``1/(T - T0)`` changes sign, so such a
+    record's temperature term turned large and positive (+11.7 K-1 at 0.09 K below T0)
+    and dominated the E0 profile (found on a fictional Siberian record, review round
+    ten). Since 0.17.0 these records are left out of every nighttime fit.
+    """
+    kelvin = np.asarray(temperature, dtype=float) + KELVIN_OFFSET
+    with np.errstate(invalid="ignore"):
+        above_t0 = kelvin > LLOYD_TAYLOR_T0_KELVIN
+    return is_night & np.isfinite(nee) & np.isfinite(temperature) & above_t0
 
 
 def fit_e0_windows(index, nee, temperature, is_night, *, e0_window_days=15.0,
@@ -678,6 +688,10 @@ def _deviation_rows(flux, term, starts, sizes, window, grid):
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         shape = np.exp(grid[:, None] * term[None, :])
         ratio = flux[None, :] / shape
+    # a factor that underflows to 0 (a record within a kelvin or so of T0 = -46.02 °C at a
+    # large E0) weighs nothing in the weighted median; its ratio is set to 0, not inf, so
+    # that the sums below stay finite (inf - inf gave NaN deviations and NumPy warnings)
+    ratio[shape == 0.0] = 0.0
     # sort by window, then ratio (arctan maps the ratio monotonically into (0, 1));
     # the key is window + (0.5 + arctan(ratio) / pi) * 0.999, built in place
     key = np.arctan(ratio)

@@ -10,18 +10,22 @@ section 2.3, compared drivers by the fit of night data (m)).
 
 Criterion: the whole nighttime method (E0 in short windows, Rref in 4-day
 windows) is fitted once with each temperature; both fits have the same
-number of parameters, so the Bayesian information criterion reduces to
-ΔBIC = n ln(SSR_tsoil / SSR_tair) over the n night records both cover
-(Schwarz 1978). Soil temperature is chosen when it leaves the smaller sum of
-squared residuals (ΔBIC < 0); a tie, a failed soil-temperature fit or too few
-shared records keep air temperature, the temperature every tower measures.
+number of parameters, so the Bayesian information criterion under Laplace
+errors reduces to ΔBIC = 2n ln(SAD_tsoil / SAD_tair) over the n night records
+both cover, SAD the sum of absolute residuals (Schwarz 1978;
+:func:`fluxpart.uncertainty.laplace_delta_bic`; since 0.17.0, sums of squares
+before, which the few spikes left after screening could decide). Soil temperature
+is chosen when it leaves the smaller sum of absolute residuals by positive
+evidence (ΔBIC < −:data:`MIN_EVIDENCE_BIC`); a tie, a failed soil-temperature fit
+or too few shared records keep air temperature, the temperature every tower
+measures.
 
 Before the comparison, a candidate whose fitted E0 lies within one standard
 error of an end of the accepted range (``e0_bounds``) is set aside when the other
 candidate's is not: an E0 pressed against the range says the temperature does
 not describe the night flux (a damped soil temperature drives E0 up to the upper
 end, a temperature unrelated to the flux pulls it down to the lower end), unless
-its sum of squares is lower by strong evidence (ΔBIC beyond
+its sum of absolute residuals is lower by strong evidence (ΔBIC beyond
 :data:`STRONG_EVIDENCE_BIC`), in which case the nearness to the bound is read as
 an imprecise E0 and the comparison decides.
 
@@ -35,8 +39,8 @@ on air temperature, the evening's respiration, still driven by the warm
 afternoon, reads as a higher respiration at a given temperature, and the curve
 extrapolated into the morning and the day overestimates Reco. The nighttime method
 is fitted with air temperature delayed by each of :data:`AIR_DELAYS_HOURS`; the
-delay with the smallest sum of squared night residuals replaces the undelayed air
-temperature when its BIC, with one parameter more (n ln(SSR_delay / SSR_0) +
+delay with the smallest sum of absolute night residuals replaces the undelayed air
+temperature when its BIC, with one parameter more (2n ln(SAD_delay / SAD_0) +
 ln n), is lower by more than :data:`STRONG_EVIDENCE_BIC`: the delay is picked from
 several, so positive evidence alone is not enough.
 """
@@ -48,7 +52,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import InsufficientDataError
-from ..uncertainty import bic_weight, driver_weight
+from ..uncertainty import bic_weight, driver_weight, laplace_delta_bic
 from .nighttime import partition_nighttime
 
 _DEFAULT_E0_BOUNDS = (30.0, 450.0)   # partition_nighttime's default e0_bounds [K]
@@ -104,13 +108,13 @@ class TemperatureChoice:
         ``"tair"`` or ``"tsoil"``.
     reason : str
         One sentence on why (for the run's notes).
-    ssr : dict
-        Sum of squared night residuals per candidate [(µmol m-2 s-1)²] on the
+    sad : dict
+        Sum of absolute night residuals per candidate [µmol m-2 s-1] on the
         shared records; NaN for a candidate whose fit failed.
     records : int
         Shared night records n.
     delta_bic : float
-        n ln(SSR_tsoil / SSR_tair); negative favours soil temperature; NaN
+        2n ln(SAD_tsoil / SAD_tair); negative favours soil temperature; NaN
         when not compared.
     tsoil_weight : float
         Posterior weight of soil temperature under equal priors,
@@ -136,7 +140,7 @@ class TemperatureChoice:
 
     driver: str
     reason: str
-    ssr: dict
+    sad: dict
     records: int
     delta_bic: float
     tsoil_weight: float
@@ -149,8 +153,9 @@ class TemperatureChoice:
     def to_dict(self) -> dict:
         """Plain values for the provenance record."""
         return {"setting": "auto", "chosen": self.driver, "reason": self.reason,
-                "criterion": "BIC of the nighttime Lloyd–Taylor fit to measured night NEE",
-                "ssr": {name: _plain(value) for name, value in self.ssr.items()},
+                "criterion": ("BIC of the nighttime Lloyd–Taylor fit to measured night NEE "
+                              "under Laplace errors"),
+                "sad": {name: _plain(value) for name, value in self.sad.items()},
                 "records": int(self.records), "delta_bic_tsoil_minus_tair":
                     _plain(self.delta_bic), "tsoil_weight": _plain(self.tsoil_weight),
                 "delay_hours": float(self.delay_hours),
@@ -199,7 +204,7 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     records with both temperatures measured are compared. Night residuals are
     autocorrelated, so the weight overstates the evidence (see
     :func:`fluxpart.uncertainty.driver_weight`); the choice itself only depends
-    on which sum of squares is smaller.
+    on which sum of absolute residuals is smaller.
 
     References
     ----------
@@ -226,12 +231,12 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     pressed = {name: _e0_at_bound(fit.e0_annual, bounds) for name, fit in fits.items()}
     shared = night & np.isfinite(nee) & np.isfinite(reco["tair"]) & np.isfinite(reco["tsoil"])
     count = int(shared.sum())
-    ssr = {name: float(np.sum(np.square(nee[shared] - values[shared])))
+    sad = {name: float(np.sum(np.abs(nee[shared] - values[shared])))
            for name, values in reco.items()}
-    if count < MIN_SHARED_RECORDS or min(ssr.values()) <= 0:
+    if count < MIN_SHARED_RECORDS or min(sad.values()) <= 0:
         return TemperatureChoice("tair", f"only {count} night records have both temperatures",
-                                 ssr, count, np.nan, np.nan, fits)
-    delta_bic = count * float(np.log(ssr["tsoil"] / ssr["tair"]))
+                                 sad, count, np.nan, np.nan, fits)
+    delta_bic = laplace_delta_bic(sad["tsoil"], sad["tair"], count)
     weight = driver_weight(nee, shared, reco["tair"], reco["tsoil"])
     strongly_favoured = ("tsoil" if delta_bic < -STRONG_EVIDENCE_BIC
                          else "tair" if delta_bic > STRONG_EVIDENCE_BIC else None)
@@ -242,7 +247,7 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
                   f"within one standard error of the accepted range {list(bounds)} K: "
                   f"{words[driver]} temperature used (ΔBIC soil - air = {delta_bic:.1f} over "
                   f"{count} records)")
-        return TemperatureChoice(driver, reason, ssr, count, delta_bic, weight, fits)
+        return TemperatureChoice(driver, reason, sad, count, delta_bic, weight, fits)
     driver = "tsoil" if delta_bic < -MIN_EVIDENCE_BIC else "tair"
     if driver == "tair" and delta_bic < 0:
         reason = (f"soil and air temperature explain the measured night NEE equally well "
@@ -256,7 +261,7 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
             reason += (f", strongly (beyond {STRONG_EVIDENCE_BIC:g}), although its E0 of "
                        f"{pressed[driver]} K is within one standard error of the accepted "
                        f"range {list(bounds)} K")
-    return TemperatureChoice(driver, reason, ssr, count, delta_bic, weight, fits)
+    return TemperatureChoice(driver, reason, sad, count, delta_bic, weight, fits)
 
 
 def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
@@ -282,14 +287,14 @@ def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
     for values in reco.values():
         shared &= np.isfinite(values)
     count = int(shared.sum())
-    ssr = {records: float(np.sum(np.square(nee[shared] - values[shared])))
+    sad = {records: float(np.sum(np.abs(nee[shared] - values[shared])))
            for records, values in reco.items()}
     undelayed = fits.pop("tair_undelayed")
-    none = {"tair": ssr.get(0, np.nan), "tsoil": np.nan}
-    if count < MIN_SHARED_RECORDS or len(ssr) < 2 or min(ssr.values()) <= 0:
+    none = {"tair": sad.get(0, np.nan), "tsoil": np.nan}
+    if count < MIN_SHARED_RECORDS or len(sad) < 2 or min(sad.values()) <= 0:
         return _plain_air(none, count, {"tair": undelayed})
-    best = min((records for records in ssr if records), key=lambda r: (ssr[r], r))
-    delta_bic = count * float(np.log(ssr[best] / ssr[0])) + float(np.log(count))
+    best = min((records for records in sad if records), key=lambda r: (sad[r], r))
+    delta_bic = laplace_delta_bic(sad[best], sad[0], count, extra_parameters=1)
     weight = bic_weight(delta_bic)
     hours = best * step_hours
     if delta_bic < -STRONG_EVIDENCE_BIC:
@@ -297,7 +302,7 @@ def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
                   f"explains the measured night NEE better (ΔBIC delayed - undelayed = "
                   f"{delta_bic:.1f} over {count} records, one parameter more), as soil "
                   "respiration lags the air")
-        return TemperatureChoice("tair", reason, {**none, "tair_delayed": ssr[best]}, count,
+        return TemperatureChoice("tair", reason, {**none, "tair_delayed": sad[best]}, count,
                                  np.nan, np.nan, {"tair": fits[best],
                                                   "tair_undelayed": undelayed},
                                  delay_records=best, delay_hours=hours,
@@ -305,14 +310,14 @@ def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
     reason = (f"the input has no soil temperature; air temperature kept undelayed (best "
               f"delay {hours:g} h: ΔBIC {delta_bic:.1f} over {count} records, not beyond "
               f"{-STRONG_EVIDENCE_BIC:g})")
-    return TemperatureChoice("tair", reason, {**none, "tair_delayed": ssr[best]}, count,
+    return TemperatureChoice("tair", reason, {**none, "tair_delayed": sad[best]}, count,
                              np.nan, np.nan, {"tair": undelayed}, delay_hours=0.0,
                              delay_delta_bic=delta_bic, delay_weight=weight)
 
 
-def _plain_air(ssr, count, fits) -> TemperatureChoice:
+def _plain_air(sad, count, fits) -> TemperatureChoice:
     """Undelayed air temperature, no delay compared (too few records or fits)."""
-    return TemperatureChoice("tair", "the input has no soil temperature", ssr, count, np.nan,
+    return TemperatureChoice("tair", "the input has no soil temperature", sad, count, np.nan,
                              np.nan, fits)
 
 
