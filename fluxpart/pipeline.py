@@ -260,13 +260,25 @@ def _ustar_thresholds(frame, screened, is_night, site, config):
         plateau_reference=config.ustar_plateau_reference)
     annual = found.annual.set_index("year").reindex(years)
     detected = annual["threshold"].astype(float)
-    central = detected.fillna(config.ustar_threshold).rename("threshold")
+    # a year without a detected threshold takes the nearest year's (same tower and canopy),
+    # and the fixed ustar_threshold only where no year has one (ustar.nearest_detected_year)
+    donors = ustar.nearest_detected_year(detected)
+    percentiles = [name for name in annual.columns if name.startswith("threshold")]
+    for year, donor in donors.items():
+        annual.loc[year, percentiles] = annual.loc[donor, percentiles].to_numpy()
+    central = annual["threshold"].astype(float).fillna(config.ustar_threshold).rename(
+        "threshold")
     table = found.table()
-    fallback_years = set(detected.index[detected.isna()])
-    table["source"] = np.where(table["year"].isin(fallback_years) & (table["period"] == "year"),
-                               "fallback", np.where(table["threshold"].isna(), "none",
-                                                    "detected"))
+    missing_years = set(detected.index[detected.isna()])
+    year_rows = table["period"] == "year"
+    table["source"] = np.where(
+        table["year"].isin(missing_years - set(donors)) & year_rows, "fallback",
+        np.where(table["year"].isin(set(donors)) & year_rows, "nearest_year",
+                 np.where(table["threshold"].isna(), "none", "detected")))
     table.loc[table["source"] == "fallback", "threshold"] = config.ustar_threshold
+    borrowed = table["source"] == "nearest_year"
+    table.loc[borrowed, "threshold"] = table.loc[borrowed, "year"].map(
+        lambda year: float(central[donors[year]]))
     scenarios = {}
     if config.ustar_bootstrap_draws > 0:
         for percentile in config.ustar_scenarios:
@@ -589,6 +601,14 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         years = sorted(set(ustar_table.loc[ustar_table["source"] == "fallback", "year"]))
         warnings.append(f"u* threshold not detectable in {', '.join(map(str, years))}: the fixed "
                         f"ustar_threshold = {config.ustar_threshold} m s-1 was used there")
+    yearly = ustar_table[ustar_table["period"] == "year"].set_index("year")
+    donors = ustar.nearest_detected_year(
+        yearly["threshold"].where(yearly["source"] == "detected"))
+    if (yearly["source"] == "nearest_year").any():
+        warnings.append("u* threshold not detectable in " + "; ".join(
+            f"{year}: {donors[year]}'s {yearly.loc[year, 'threshold']:.3f} m s-1 was used "
+            "there (the same tower and canopy)"
+            for year in yearly.index[yearly["source"] == "nearest_year"]))
 
     filled_drivers = gapfill.fill_drivers(
         screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days,

@@ -51,6 +51,7 @@ __all__ = [
     "change_point_critical_value",
     "change_point_threshold",
     "detect_threshold",
+    "nearest_detected_year",
     "moving_point_threshold",
 ]
 
@@ -623,6 +624,42 @@ def bootstrap_threshold(nee, ustar, tair, is_night, seasons, *, detector="moving
     data = _night_data(nee, ustar, tair, is_night, seasons,
                        need_tair=detector == "moving_point" or tair is not None)
     return _bootstrap(data, detector, options, draws, seed)
+
+
+def nearest_detected_year(thresholds: pd.Series) -> dict:
+    """For each year without a detected threshold, the nearest year with one.
+
+    Parameters
+    ----------
+    thresholds : pandas.Series
+        Detected threshold per year [m s-1], indexed by year; NaN where none was found.
+
+    Returns
+    -------
+    dict
+        ``{year: donor year}`` for the NaN years, the donor being the nearest year with a
+        finite threshold (the earlier one on a tie); empty where no year has one.
+
+    Notes
+    -----
+    The u* threshold is a property of the tower and its canopy: the turbulence below it is
+    too weak to carry the surface flux to the sensor (Goulden et al. 1996 (m); Papale et al.
+    2006). A year with too few night records to detect it (a record that starts in November,
+    the December of a December-to-November budget year) has the same tower and canopy as the
+    neighbouring year, whose detected threshold is a better estimate than a value typical of
+    towers in general (``Config.ustar_threshold``). Our choice, since 0.17.0: before it such
+    years took the fixed 0.2 m s-1.
+    """
+    years = np.asarray(thresholds.index, dtype=np.int64)
+    found = np.isfinite(thresholds.to_numpy(dtype=float))
+    if not found.any():
+        return {}
+    donors = years[found]
+    out = {}
+    for year in years[~found]:
+        distance = np.abs(donors - year)
+        out[int(year)] = int(donors[np.flatnonzero(distance == distance.min())[0]])
+    return out
 
 
 def detect_threshold(index, nee, ustar, tair, is_night, latitude, *, detector="moving_point",

@@ -451,3 +451,36 @@ def test_plateau_reference_is_the_top_share_of_the_ustar_classes():
     assert np.isclose(quarter.annual["threshold"].iloc[0], 0.05 * 16 + 0.001)
     with pytest.raises(ConfigError, match="plateau_reference"):
         moving_point_threshold(level, friction, tair, night, seasons, plateau_reference=0.0)
+
+
+def test_nearest_detected_year_lends_its_threshold():
+    """Years without a detected threshold take the nearest year's (the earlier on a tie);
+    with none detected, nothing is lent (the fixed ustar_threshold then applies)."""
+    from fluxpart.ustar import nearest_detected_year
+
+    thresholds = pd.Series([np.nan, 0.15, np.nan, np.nan, 0.2],
+                           index=[2019, 2020, 2021, 2022, 2023])
+    assert nearest_detected_year(thresholds) == {2019: 2020, 2021: 2020, 2022: 2023}
+    assert nearest_detected_year(pd.Series([np.nan, np.nan], index=[2020, 2021])) == {}
+
+
+def test_a_stub_year_takes_the_neighbouring_years_threshold():
+    """Invented demo year plus 20 days of the next January (too few nights to detect a
+    threshold): the stub takes the full year's detected threshold, marked "nearest_year"
+    and warned about, not the fixed 0.2 m s-1 (the u* threshold is a property of the tower
+    and its canopy; Papale et al. 2006)."""
+    from fluxpart import demo
+    from fluxpart.config import Config
+    from fluxpart.pipeline import process
+
+    frame, _ = demo.site_year(seed=1)
+    stub, _ = demo.site_year(seed=2)
+    stub = stub.iloc[:48 * 20].copy()
+    stub.index = stub.index + pd.DateOffset(years=1)
+    result = process(pd.concat([frame, stub]), demo.site(), Config(ustar_bootstrap_draws=20))
+    yearly = result.ustar[result.ustar["period"] == "year"].set_index("year")
+    assert yearly.loc[2021, "source"] == "detected"
+    assert yearly.loc[2022, "source"] == "nearest_year"
+    assert yearly.loc[2022, "threshold"] == pytest.approx(yearly.loc[2021, "threshold"])
+    assert yearly.loc[2022, "threshold"] != pytest.approx(Config().ustar_threshold)
+    assert any("2022: 2021's" in text for text in result.warnings)
