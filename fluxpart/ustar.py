@@ -51,8 +51,8 @@ __all__ = [
     "change_point_critical_value",
     "change_point_threshold",
     "detect_threshold",
-    "nearest_detected_year",
     "moving_point_threshold",
+    "nearest_detected_year",
 ]
 
 #: Season names in table order.
