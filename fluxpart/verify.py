@@ -605,6 +605,11 @@ def result_identity(manifest: dict) -> str:
         if isinstance(entry, dict) and entry.get("sha256"):
             name = Path(str(entry.get("path", "?"))).name
             files = entry.get("files") if isinstance(entry.get("files"), list) else []
+            names = [Path(str(f.get("path", ""))).name for f in files if isinstance(f, dict)]
+            if len(set(names)) < len(names):
+                # files of one name in several folders (a glob over year folders of
+                # monthly files): the base name alone would not tell which is meant
+                name = str(entry.get("path", "?"))
             if len(files) > 1:
                 # the hash of several files is of their names and hashes, none file's own
                 parts.append(f"{label} {name} and {len(files) - 1} more file(s) (sha256 of "

@@ -609,3 +609,9 @@ def test_identity_of_several_input_files_does_not_give_the_first_the_lists_hash(
     single = {"seed": 0, "provenance": {"input": {"path": "/data/a.csv",
                                                   "sha256": own["a.csv"]}}}
     assert f"input a.csv (sha256 {own['a.csv'][:12]}...)" in result_identity(single)
+    # monthly files of one name in year folders (a ** glob): the recorded path, not "01.csv"
+    yearly = {"seed": 0, "provenance": {"input": {
+        "path": "../data/2022/01.csv", "sha256": combined,
+        "files": [{"path": f"../data/{year}/01.csv", "sha256": own["a.csv"]}
+                  for year in (2022, 2023)]}}}
+    assert "input ../data/2022/01.csv and 1 more file(s)" in result_identity(yearly)
