@@ -279,6 +279,13 @@ def _ustar_thresholds(frame, screened, is_night, site, config):
     borrowed = table["source"] == "nearest_year"
     table.loc[borrowed, "threshold"] = table.loc[borrowed, "year"].map(
         lambda year: float(central[donors[year]]))
+    # ... and the donor's bootstrap percentiles, which its u* scenarios use (above), not the
+    # few draws of its own that found a threshold
+    spread = [name for name in table.columns if name.startswith("threshold_p")] + ["draws_valid"]
+    donor_rows = table[year_rows].set_index("year")
+    for year, donor in donors.items():
+        table.loc[year_rows & (table["year"] == year), spread] = (
+            donor_rows.loc[donor, spread].to_numpy())
     scenarios = {}
     if config.ustar_bootstrap_draws > 0:
         for percentile in config.ustar_scenarios:

@@ -409,15 +409,23 @@ def _ustar(index, usable_night, latitude, config) -> tuple:
     counts = pd.Series(usable_night, index=index).groupby(
         [seasons["year"].to_numpy(), seasons["season"].to_numpy()]).sum()
     findings, years = [], set()
-    for year in sorted(set(index.year)):
+    all_years = sorted(set(index.year))
+    for year in all_years:
         mine = counts[counts.index.get_level_values(0) == year]
         if mine.empty or mine.max() < needed:
             years.add(int(year))
-            best = (f"{int(mine.max())} in {mine.idxmax()[1]}" if not mine.empty else "none")
-            findings.append(Finding("u* threshold", (
-                f"{year}: no season has the {needed} night records with NEE, u* and Tair that "
-                f"the {config.ustar_method} detector needs (most: {best}); the fixed "
-                f"ustar_threshold = {config.ustar_threshold:g} m s-1 would be used"), False))
+    # since 0.17.0 such a year takes the threshold detected in the nearest year with one
+    # (ustar.nearest_detected_year), the fixed ustar_threshold only where no year has one
+    fixed = f"the fixed ustar_threshold = {config.ustar_threshold:g} m s-1"
+    fallback = (f"{fixed} would be used" if len(years) == len(all_years) else
+                f"the threshold detected in the nearest year with one would be used ({fixed} "
+                "if none has)")
+    for year in sorted(years):
+        mine = counts[counts.index.get_level_values(0) == year]
+        best = (f"{int(mine.max())} in {mine.idxmax()[1]}" if not mine.empty else "none")
+        findings.append(Finding("u* threshold", (
+            f"{year}: no season has the {needed} night records with NEE, u* and Tair that "
+            f"the {config.ustar_method} detector needs (most: {best}); {fallback}"), False))
     return findings, years
 
 

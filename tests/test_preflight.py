@@ -142,6 +142,24 @@ def test_too_few_night_records_for_ustar_detection_is_a_fallback(demo_frame):
     assert "u* threshold" not in _stages(findings)
 
 
+def test_a_stub_year_without_enough_night_records_names_the_nearest_years_threshold():
+    """A record from 22 December to the end of the next year: the ten December days hold far
+    fewer than the 360 night records per season the moving point test needs, the full year
+    enough. The run gives the stub year the full year's detected threshold
+    (ustar.nearest_detected_year, since 0.17.0), so the check says so and does not promise
+    the fixed ustar_threshold (it did, contradicting the u* table's nearest_year source)."""
+    frame, _ = demo.site_year(seed=1, year=2020, years=2)
+    frame = frame.loc["2020-12-22":]
+    _, findings = check_record(frame, demo.site())
+    ustar = [f.message for f in findings if f.stage == "u* threshold"]
+    assert len(ustar) == 1 and ustar[0].startswith("2020:")
+    assert "nearest year" in ustar[0] and "0.2 m s-1 would be used" not in ustar[0]
+    # two weeks alone: no year has enough, the fixed threshold is what the run uses
+    _, findings = check_record(frame.iloc[:48 * 14], demo.site())
+    alone = [f.message for f in findings if f.stage == "u* threshold"]
+    assert alone and all("fixed ustar_threshold = 0.2 m s-1 would be used" in m for m in alone)
+
+
 def test_rg_above_potential_is_reported_as_clock_evidence(demo_frame):
     """A site configured one hour off: the Rg-above-potential screen's rejections are
     reported (in the morning or evening), not silently refilled."""

@@ -122,3 +122,24 @@ def test_model_average_without_an_exponential_fit_is_lloyd_taylor():
     np.testing.assert_array_equal(form.shift, np.zeros(3))
     with pytest.raises(ValueError, match="respiration_form"):
         average_forms(reco, reco, 0.5, "q10")
+
+
+def test_recorded_form_weight_is_the_laplace_bic_weight_and_says_so():
+    """The manifest's respiration_form record names the criterion its weight follows: the
+    BIC under Laplace errors, -2 ln L = 2n ln(2 SAD / n) + 2n at the fitted scale (Kotz et
+    al. 2001 (m)), so equal-parameter models weigh 1 / (1 + (SAD_exp / SAD_LT)^n) (Schwarz
+    1978). Invented night records where the two criteria disagree: the Lloyd-Taylor
+    residuals are small but for one spike, the exponential's moderate throughout, so sums
+    of squares favour the exponential form and sums of absolute residuals Lloyd-Taylor."""
+    n = 40
+    nee = np.full(n, 2.0)
+    lloyd = nee + np.r_[np.full(n - 1, 0.05), 6.0]
+    exponential = nee + 0.5
+    sad_lt, sad_exp = np.abs(nee - lloyd).sum(), np.abs(nee - exponential).sum()
+    assert np.square(nee - exponential).sum() < np.square(nee - lloyd).sum()   # SSR: exp
+    expected = 1.0 / (1.0 + (sad_exp / sad_lt) ** n)
+    weight = driver_weight(nee, np.ones(n, dtype=bool), lloyd, exponential)
+    assert weight == pytest.approx(expected, rel=1e-12) and weight < 0.5
+    record = average_forms(lloyd, exponential, weight).to_dict()
+    assert record["exponential_weight"] == round(expected, 6)
+    assert "under Laplace errors" in record["criterion"]

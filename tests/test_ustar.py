@@ -484,3 +484,10 @@ def test_a_stub_year_takes_the_neighbouring_years_threshold():
     assert yearly.loc[2022, "threshold"] == pytest.approx(yearly.loc[2021, "threshold"])
     assert yearly.loc[2022, "threshold"] != pytest.approx(Config().ustar_threshold)
     assert any("2022: 2021's" in text for text in result.warnings)
+    # the table states the percentiles the stub's u* scenarios used: the donor year's
+    # (review round eleven: it showed the stub's own, from the few draws that found one)
+    spread = [name for name in yearly.columns if name.startswith("threshold_p")]
+    assert spread and np.isfinite(yearly.loc[2021, spread].to_numpy(dtype=float)).all()
+    assert np.array_equal(yearly.loc[2022, spread].to_numpy(dtype=float),
+                          yearly.loc[2021, spread].to_numpy(dtype=float))
+    assert yearly.loc[2022, "draws_valid"] == yearly.loc[2021, "draws_valid"]

@@ -14,7 +14,8 @@ windows, the annual E0, Rref in 4-day windows) with the exponential
 Lloyd–Taylor code the temperature at which it is that form
 (:func:`fluxpart.responses.exponential_equivalent_temperature`). The two fits
 have the same number of parameters, so the night data weigh them by their sums
-of squares (:func:`fluxpart.uncertainty.driver_weight`, the BIC weight also
+of absolute residuals (:func:`fluxpart.uncertainty.driver_weight`, the BIC weight
+under Laplace errors since 0.17.0, sums of squares before; the weight also
 used for the choice of temperature), and
 :func:`fluxpart.uncertainty.period_uncertainty` states √w·|ΣΔReco| as a part of
 every partitioned flux.
@@ -170,7 +171,8 @@ class FormAverage:
         return {"setting": self.setting, "fitted": self.exponential is not None,
                 "exponential_weight": round(self.weight, 6), "share_applied": round(self.share, 6),
                 "criterion": "BIC weight of the constant-Q10 against the Lloyd–Taylor nighttime "
-                             "fit on the measured, u*-filtered night NEE (equal priors)"}
+                             "fit on the measured, u*-filtered night NEE under Laplace errors "
+                             "(equal priors)"}
 
 
 def average_forms(lloyd_taylor, exponential, weight, setting="average") -> FormAverage:
