@@ -238,7 +238,7 @@ class Config:
         all of the year's measured night NEE at once, with a free Rref in each
         consecutive ``e0_window_days`` window, by least absolute deviations (the
         maximum likelihood under the Laplace-distributed random error of flux
-        measurements, Richardson & Hollinger 2005), so only the short-term
+        measurements, Hollinger & Richardson 2005), so only the short-term
         temperature variation within windows informs it (Reichstein et al.
         2005's aim) while every window counts by its information; a year whose
         joint fit is at an ``e0_bounds`` limit or above ``e0_max_relative_error``
