@@ -7,6 +7,7 @@ own manifest, see :func:`fluxpart.resultdir.read_folder`) and lists
 
 - the SHA-256 of the input file(s) and of the site config;
 - each setting, the site, the seed, the reader's record and the warnings that differ;
+- the model choices the night data made (respiration temperature, delay, form weight);
 - each library version, the code fingerprint and the platform facts that differ;
 - the tables whose bytes differ;
 - how each annual number moved: both values, the change (second minus first)
@@ -33,6 +34,9 @@ __all__ = ["DiffReport", "command_diff", "diff_folders"]
 
 _SECTIONS = (("site", "site"), ("config", "setting"), ("seed", "seed"),
              ("warnings", "warnings"), ("caution", "caution"), ("format", "format"))
+# provenance records of the choices the night data make, and the fields compared
+_MODEL_CHOICES = (("respiration_driver", ("chosen", "delay_hours")),
+                  ("respiration_form", ("exponential_weight", "share_applied")))
 
 
 @dataclass(frozen=True)
@@ -47,7 +51,9 @@ class DiffReport:
         ``(section, name, first value, second value)`` for everything that differs
         apart from the annual numbers; sections are ``"input"``, ``"setting"``,
         ``"site"``, ``"seed"``, ``"reader"``, ``"warnings"``, ``"caution"``,
-        ``"format"``, ``"version"``, ``"code"``, ``"platform"`` and ``"table"``.
+        ``"format"``, ``"model"`` (the respiration temperature, its delay and the
+        respiration form's weight the night data chose; since 0.17.0), ``"version"``,
+        ``"code"``, ``"platform"`` and ``"table"``.
     annual : pandas.DataFrame
         One row per (year, column) of ``annual`` whose value differs: ``first``,
         ``second``, ``change`` (second - first, in the column's unit) and
@@ -136,6 +142,15 @@ def _recorded_items(first: dict, second: dict) -> list:
         items.append(("reader", name or "record", _short(a), _short(b)))
     for name, a, b in field_differences(a_prov.get("screening"), b_prov.get("screening"), ""):
         items.append(("reader", f"screening {name}".strip(), _short(a), _short(b)))
+    # the model choices the data made: a rerun on other data (or other code) can choose
+    # another respiration temperature, delay or form, which moves the partitioned sums
+    for key, fields in _MODEL_CHOICES:
+        a_choice, b_choice = a_prov.get(key) or {}, b_prov.get(key) or {}
+        for name in fields:
+            if isinstance(a_choice, dict) and isinstance(b_choice, dict) \
+                    and a_choice.get(name) != b_choice.get(name):
+                items.append(("model", f"{key} {name}", _short(a_choice.get(name)),
+                              _short(b_choice.get(name))))
     for name, a, b in field_differences(first.get("versions"), second.get("versions"), ""):
         items.append(("version", name, _short(a), _short(b)))
     a_code, b_code = first.get("code") or {}, second.get("code") or {}

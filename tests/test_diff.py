@@ -106,3 +106,24 @@ def test_a_folder_that_does_not_match_its_manifest_is_an_error(folders, tmp_path
     assert main(["diff", str(first), str(other)]) == 2
     assert "extra.parquet" in capsys.readouterr().err
     assert main(["diff", str(first), str(tmp_path / "nowhere")]) == 2
+
+
+def test_a_model_choice_the_data_made_differently_is_named(folders):
+    """Two runs whose night data chose another respiration temperature, delay or form weight
+    (the partitioned sums move with it) name each choice under "model"; the folders'
+    own manifests, which agree on them, name none."""
+    from fluxpart.diff import _recorded_items
+
+    _, first, second = folders
+    a = json.loads((first / "manifest.json").read_text())
+    b = json.loads((second / "manifest.json").read_text())
+    assert not any(section == "model" for section, *_ in _recorded_items(a, a))
+    b["provenance"]["respiration_driver"] = {**a["provenance"]["respiration_driver"],
+                                             "chosen": "other", "delay_hours": 3.0}
+    b["provenance"]["respiration_form"] = {**a["provenance"]["respiration_form"],
+                                           "exponential_weight": 0.25}
+    model = {name: (x, y) for section, name, x, y in _recorded_items(a, b)
+             if section == "model"}
+    assert model["respiration_driver chosen"][1] == "other"
+    assert model["respiration_driver delay_hours"][1] == "3.0"
+    assert model["respiration_form exponential_weight"][1] == "0.25"
