@@ -279,6 +279,8 @@ def _ustar_thresholds(frame, screened, is_night, site, config):
     borrowed = table["source"] == "nearest_year"
     table.loc[borrowed, "threshold"] = table.loc[borrowed, "year"].map(
         lambda year: float(central[donors[year]]))
+    table.loc[borrowed, "reason"] = table.loc[borrowed, "year"].map(
+        lambda year: f"{donors[year]}'s threshold, the nearest year with one")
     # ... and the donor's bootstrap percentiles, which its u* scenarios use (above), not the
     # few draws of its own that found a threshold
     spread = [name for name in table.columns if name.startswith("threshold_p")] + ["draws_valid"]
@@ -608,14 +610,12 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         years = sorted(set(ustar_table.loc[ustar_table["source"] == "fallback", "year"]))
         warnings.append(f"u* threshold not detectable in {', '.join(map(str, years))}: the fixed "
                         f"ustar_threshold = {config.ustar_threshold} m s-1 was used there")
-    yearly = ustar_table[ustar_table["period"] == "year"].set_index("year")
-    donors = ustar.nearest_detected_year(
-        yearly["threshold"].where(yearly["source"] == "detected"))
-    if (yearly["source"] == "nearest_year").any():
+    borrowed = ustar_table[ustar_table["source"] == "nearest_year"]
+    if len(borrowed):
         warnings.append("u* threshold not detectable in " + "; ".join(
-            f"{year}: {donors[year]}'s {yearly.loc[year, 'threshold']:.3f} m s-1 was used "
-            "there (the same tower and canopy)"
-            for year in yearly.index[yearly["source"] == "nearest_year"]))
+            f"{year}: {reason.split(',')[0]} ({threshold:.3f} m s-1) was used there (the same "
+            "tower and canopy)" for year, reason, threshold in zip(
+                borrowed["year"], borrowed["reason"], borrowed["threshold"], strict=True)))
 
     filled_drivers = gapfill.fill_drivers(
         screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days,

@@ -375,16 +375,19 @@ def _reversed_sign(nee: np.ndarray, night: np.ndarray, active: np.ndarray):
     return night_median, low, high
 
 
+def _night_mask(converted: dict, potential):
+    """Records without sun (potential radiation 0, else Rg below 10 W m-2); None if unknown."""
+    if potential is not None:
+        return np.asarray(potential) <= 0.0
+    if converted.get("rg") is not None:
+        return converted["rg"] < 10.0
+    return None
+
+
 def _night_median(converted: dict, potential) -> float:
     """Median NEE of the records without sun [µmol m-2 s-1]; NaN where it cannot be told."""
-    nee = converted.get("nee")
-    if nee is None:
-        return math.nan
-    if potential is not None:
-        night = np.asarray(potential) <= 0.0
-    elif converted.get("rg") is not None:
-        night = converted["rg"] < 10.0
-    else:
+    nee, night = converted.get("nee"), _night_mask(converted, potential)
+    if nee is None or night is None:
         return math.nan
     values = nee[night & np.isfinite(nee)]
     return float(np.median(values)) if values.size else math.nan
@@ -405,14 +408,8 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
     alone never refuses. Returns (refusal, warning); both None when it cannot tell or
     finds nothing (:func:`mixup_messages` then applies the rule month by month).
     """
-    nee = converted.get("nee")
-    if nee is None:
-        return None, None
-    if potential is not None:
-        night = np.asarray(potential) <= 0.0
-    elif converted.get("rg") is not None:
-        night = converted["rg"] < 10.0
-    else:
+    nee, night = converted.get("nee"), _night_mask(converted, potential)
+    if nee is None or night is None:
         return None, None
     active = _active(converted, 5.0)
     if active is None:

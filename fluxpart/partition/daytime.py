@@ -1482,9 +1482,9 @@ def _reject_runaway_curves(status, reason, theta, window_e0, days, centres, arrh
             break
         chosen = used[runaway]
         status[chosen] = "rejected"
-        reason[chosen] = [f"{text}; " if text else "" for text in reason[chosen]]
-        reason[chosen] = [f"{text}respiration curve above {_MAX_CURVE_RESPIRATION:g} "
-                          "µmol m-2 s-1 at a record it applies to" for text in reason[chosen]]
+        note = (f"respiration curve above {_MAX_CURVE_RESPIRATION:g} µmol m-2 s-1 at a record "
+                "it applies to")
+        reason[chosen] = [f"{text}; {note}" if text else note for text in reason[chosen]]
     return status, reason
 
 

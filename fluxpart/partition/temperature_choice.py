@@ -52,7 +52,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import InsufficientDataError
-from ..uncertainty import bic_weight, driver_weight, laplace_delta_bic
+from ..uncertainty import bic_weight, laplace_delta_bic
 from .nighttime import partition_nighttime
 
 _DEFAULT_E0_BOUNDS = (30.0, 450.0)   # partition_nighttime's default e0_bounds [K]
@@ -237,7 +237,7 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
         return TemperatureChoice("tair", f"only {count} night records have both temperatures",
                                  sad, count, np.nan, np.nan, fits)
     delta_bic = laplace_delta_bic(sad["tsoil"], sad["tair"], count)
-    weight = driver_weight(nee, shared, reco["tair"], reco["tsoil"])
+    weight = bic_weight(delta_bic)     # = driver_weight of the same records, not recomputed
     strongly_favoured = ("tsoil" if delta_bic < -STRONG_EVIDENCE_BIC
                          else "tair" if delta_bic > STRONG_EVIDENCE_BIC else None)
     if bool(pressed["tair"]) != bool(pressed["tsoil"]) and not pressed.get(strongly_favoured):
