@@ -611,7 +611,7 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
     best, best_swing = sign * float(best_abs), scores[best_abs]
     # A latitude sets the day length symmetrically about solar noon: sunrise and sunset
     # move by the same minutes in opposite directions, the midpoint of the Rg edges stays
-    # put (FAO-56, eq. 34: the sunset hour angle ±ωs). An obstruction on one side only
+    # put (FAO-56, eq. 34: the day length 24 ωs / π from the sunset hour angle ±ωs). An obstruction on one side only
     # (a tree line or building east of the sensor, morning fog) moves one edge, so the
     # midpoint swings by half the width's swing. Called a latitude error only where the
     # midpoint's swing stays below a quarter of the width's (halfway between 0 and 1/2).

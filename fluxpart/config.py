@@ -52,9 +52,11 @@ class Config:
         ``"fixed"`` (use `ustar_threshold` for every year).
     ustar_threshold : float
         Fixed friction-velocity threshold [m s-1] for ``ustar_method = "fixed"`` and
-        the flagged fall-back for years where no threshold can be detected. 0.2 m s-1
-        is our choice, a value typical of the thresholds reported for forests and
-        grasslands (m).
+        the flagged fall-back for years where no threshold can be detected in any year
+        of the record (since 0.17.0 a year without one takes the nearest year's detected
+        threshold first: the threshold belongs to the tower and its canopy,
+        :func:`fluxpart.ustar.nearest_detected_year`). 0.2 m s-1 is our choice, a value
+        typical of the thresholds reported for forests and grasslands (m).
     ustar_temperature_classes : int
         Moving point test: night data of a season split into this many temperature
         classes of equal size; 6, Reichstein et al. (2005) (m).
