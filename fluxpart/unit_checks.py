@@ -503,11 +503,15 @@ def _months_refused(check, converted: dict, potential, stamps) -> list:
     if stamps is None:
         return []
     months = np.asarray(stamps, dtype="datetime64[M]")
+    # each month's rows in record order, from one stable sort (a mask per month would
+    # scan the whole record once per month: quadratic in the record's years)
+    order = np.argsort(months, kind="stable")
+    unique, starts = np.unique(months[order], return_index=True)
+    potential = None if potential is None else np.asarray(potential)
     found = []
-    for month in np.unique(months):
-        rows = months == month
+    for month, rows in zip(unique, np.split(order, starts[1:]), strict=True):
         part = {name: values[rows] for name, values in converted.items()}
-        if check(part, None if potential is None else np.asarray(potential)[rows]):
+        if check(part, None if potential is None else potential[rows]):
             found.append(str(month))
     return found
 
