@@ -67,15 +67,16 @@ constant or form of this script with no source):
   record after a year of spin-up (a copy of the first year); diffusivity 5e-7 m2 s-1 mineral,
   1.2e-7 peat (m). Surface = air + 0.01 Rg (1 - cover) (invented radiative heating); under
   more than 5 mm of snow -0.3 + 0.05 min(Tair, 0) (insulated, invented).
-- canopy (days of year counted from 0 on 1 January): the bog's sedges green up after the snow is gone (0.04 d-1) and senesce from
-  September; the grassland grows logistically (0.09 d-1 x clip((T - 5) / 15, 0, 1),
-  invented) and is cut to LAI 0.5 on days 140, 195 and 250; the eucalypt is evergreen (LAI
-  2.6, a 10 % seasonal cycle); rice transplanted on day 125 grows logistically to LAI 5.0 and
-  is harvested on day 300 (fallow weeds LAI 0.2); the forest leafs out after 150 degree days
-  (base 5 degC) over 25 days and senesces when the day is shorter than 11.2 h; in 2022 a frost
-  (minimum -4 degC) 12 days into leaf-out kills 90 % of the new leaves and a re-flush starts
-  12 days later, reaching 85 % of the first canopy (invented); the tussock grassland follows a
-  seasonal bell peaking in November. fAPAR = 1 - exp(-0.5 LAI) (Monsi & Saeki 1953 (m)).
+- canopy (days of year counted from 0 on 1 January): the bog's sedges green up after the
+  snow is gone (0.04 d-1) and senesce from September; the grassland grows logistically
+  (0.09 d-1 x clip((T - 5) / 15, 0, 1), invented) and is cut to LAI 0.5 on days 140, 195
+  and 250; the eucalypt is evergreen (LAI 2.6, a 10 % seasonal cycle); rice transplanted on
+  day 125 grows logistically to LAI 5.0 and is harvested on day 300 (fallow weeds LAI 0.2);
+  the forest leafs out after 150 degree days (base 5 degC) over 25 days and senesces when the
+  day is shorter than 11.2 h; in 2022 a frost (minimum -4 degC) 12 days into leaf-out kills
+  90 % of the new leaves and a re-flush starts 12 days later, reaching 85 % of the first
+  canopy (invented); the tussock grassland follows a seasonal bell peaking in November.
+  fAPAR = 1 - exp(-0.5 LAI) (Monsi & Saeki 1953 (m)).
 - GPP: the hyperbolic-tangent light response of Jassby & Platt (1976) (m), P = Pm tanh(alpha
   I / Pm) of absorbed PPFD, PPFD = 2.02 Rg (0.44 PAR share x 4.6 umol J-1 (m)); Pm times the
   Gaussian temperature function of June et al. (2004) (m), exp(-((T - Topt) / 14)^2), and a
@@ -183,9 +184,9 @@ Causes of the misses (``--variant`` runs, same weather, gaps and noise):
   ``onetemp,steady`` nighttime GPP and Reco within 0.6 %, daytime Reco -4.0 / -4.5 %; the
   Tjoelker Q10 (``q10const``) adds 1.5 points to the daytime Reco error.
 - the paddy's NEE (D, intervals hold): a 5-day heat wave (daily means 31-32 degC against
-  21-28 in the weeks around) in early June 2022 under a 44-h gap is filled from 28-day windows with 3
-  donors or from radiation alone (quality B): -14 g C m-2 in 5 days. Not the flood
-  (``noflood`` makes D:2022 -64.9: more respiration to miss in the same heat wave).
+  21-28 in the weeks around) in early June 2022 under a 44-h gap is filled from 28-day
+  windows with 3 donors or from radiation alone (quality B): -14 g C m-2 in 5 days. Not the
+  flood (``noflood`` makes D:2022 -64.9: more respiration to miss in the same heat wave).
 - the thaw flush, the cuts, the late frost and the 5-day outage at leaf-out cost little:
   ``nothaw`` A -9.2 / -4.4 (base -11.0 / -7.6), ``nocut`` B -1.7 / +2.3, ``nofrost`` E -18.2
   / -13.9, ``nooutage`` E -18.0 / -11.2.
