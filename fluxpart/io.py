@@ -126,6 +126,8 @@ _DIGIT_GROUPING = {",": re.compile(r"[+-]?[1-9]\d{0,2}(?:\.\d{3})+(?:,\d*)?"),
                    ".": re.compile(r"[+-]?[1-9]\d{0,2}(?:,\d{3})+(?:\.\d*)?")}
 #: Digit grouping by a character that is never a decimal mark: an apostrophe (Swiss
 #: spreadsheets), a right single quote, or a space (plain, no-break, narrow no-break, thin).
+#: A header cell that is a number (point or comma decimal): the line is a record, not names.
+_NUMBER_NAME = re.compile(r"[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?")
 _OTHER_GROUPING = re.compile(r"[+-]?[1-9]\d{0,2}(?:['\u2019 \u00a0\u202f\u2009]\d{3})+(?:[.,]\d*)?")
 
 
@@ -2100,6 +2102,13 @@ def _columns_listing(file_columns: list) -> str:
         # the parser's name for an empty header cell, e.g. a table saved with its row index
         listing += (f"; column {unnamed[0]} has no name in the header (a table saved with "
                     "its row index?): name it in the header of a copy of the file")
+    numbers = sum(bool(_NUMBER_NAME.fullmatch(str(c).strip())) for c in file_columns)
+    if numbers * 2 > len(file_columns):
+        # a file without a header line (names kept in another file, an array saved without
+        # them): its first record was read as the names
+        listing += (f"; {numbers} of these {len(file_columns)} names are numbers, so the line "
+                    "read as the header is a record: fluxpart finds columns by their names in "
+                    "a header line; add one in a copy of the file")
     return listing
 
 

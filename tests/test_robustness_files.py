@@ -522,3 +522,21 @@ def test_record_skipped_as_a_units_line_is_refused(example, tmp_path, capsys):
     assert main(["check", str(config)]) == 2
     line = _one_error(capsys)
     assert "th_2.csv': line 2 (" in line and "rows_after_header = 1, is a record" in line
+
+
+def test_file_without_header_line_is_named_as_such(example, tmp_path, capsys):
+    """A file without a header line (an array saved without names, names kept in another
+    file) has its first record read as the names: the one error line says that most
+    'names' are numbers and that a header line is needed, not only that the time column
+    is missing (review round twelve). A file with its header keeps no such hint."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    config = _with_records(example, tmp_path, "bare.csv", "\n".join(lines[1:]) + "\n")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    # every cell of the example's first record is a number (its stamps are 202101010030)
+    assert "time_column" in line and "9 of these 9 names are numbers" in line
+    assert "add one in a copy of the file" in line
+    renamed = _with_records(example, tmp_path, "renamed.csv",
+                            "\n".join([lines[0].replace("stamp_end", "stamp")] + lines[1:]))
+    assert main(["check", str(renamed)]) == 2
+    assert "names are numbers" not in _one_error(capsys)
