@@ -2070,6 +2070,10 @@ def _near(name: str, options: list, taken=()) -> str:
         stripped = [o for o in free if o.strip() == name.strip()]
         close = stripped[:1]
     if not close:
+        # another case ("CO2_FLUX" for "co2_flux"), which difflib scores as far apart
+        folded = [o for o in free if o.strip().casefold() == name.strip().casefold()]
+        close = folded[:1]
+    if not close:
         return ""
     if unicodedata.normalize("NFKC", close[0]) == unicodedata.normalize("NFKC", name):
         # shown alike by most fonts (a Greek mu typed for the file's micro sign)

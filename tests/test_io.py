@@ -1873,3 +1873,16 @@ def test_a_zone_without_summer_time_in_the_record_says_nothing_moved():
     assert text == "civil time of UTC: no daylight-saving stamp, nothing moved"
     assert "3 daylight-saving stamp(s) moved back one hour" in _conversion_text(
         {"time_zone": "Europe/Berlin", "daylight_saving": 3})
+
+
+def test_mapped_name_in_another_case_is_suggested(tmp_path):
+    """A column written in capitals ('CO2_FLUX') for the mapped 'co2_flux' is named in the
+    refusal: difflib's similarity ratio of the two is 0.25 (Python's ``difflib``), below
+    any useful cutoff, so only a comparison without case finds it (review round twelve)."""
+    import difflib
+
+    assert difflib.SequenceMatcher(None, "co2_flux", "CO2_FLUX").ratio() < 0.6
+    path = _write(tmp_path / "t.csv", _records().rename(columns={"co2_flux": "CO2_FLUX"}))
+    with pytest.raises(MissingColumnError, match=r"nee = \"co2_flux\": no such column in "
+                       r".*\(did you mean 'CO2_FLUX'\?\)"):
+        _read(path)
