@@ -1705,9 +1705,12 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     read = {name: column for name, column in mapping.items() if (name, column) not in lacking}
     read |= {_flag_key(column): column for column in flag_columns
              if ("nee_flag", column) not in lacking}
+    # decimal commas in the file's other columns: its whole numbers "1.034" are grouped
+    comma_file = decimal == "," and any(
+        raw[column].str.contains(",", regex=False).any() for column in read.values())
     for name, column in read.items():
         numbers, n_missing, absurd = _numbers(raw[column], column, name, missing, decimal,
-                                              source, lines)
+                                              source, lines, comma_file)
         values[name], missing_cells[name], nonfinite[name] = numbers, n_missing, int(absurd.sum())
         if absurd.any():
             warnings.append(f"column {column!r} ({name.split(':')[0]}): {int(absurd.sum())} "
@@ -2144,8 +2147,13 @@ def _plain_numbers(text: pd.Series, decimal: str):
 
 
 def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: str,
-             source: str, lines: np.ndarray) -> tuple[np.ndarray, int, np.ndarray]:
-    """Parse a text column to float; return values, missing-code count, non-finite mask."""
+             source: str, lines: np.ndarray, comma_file: bool = False
+             ) -> tuple[np.ndarray, int, np.ndarray]:
+    """Parse a text column to float; return values, missing-code count, non-finite mask.
+
+    `comma_file`: other columns of the file hold decimal commas (see
+    :func:`_refuse_digit_grouping`).
+    """
     plain = _plain_numbers(text, decimal)
     if plain is not None:
         # every cell is empty or a finite number: text missing codes can only match as
@@ -2158,7 +2166,7 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
     string_codes = {str(c).strip().casefold() for c in missing if isinstance(c, str)}
     is_code = folded.isin(string_codes).to_numpy() | (cleaned == "").to_numpy() \
         | folded.isin(_FLOAT_SPELLINGS_OF_NAN).to_numpy()
-    _refuse_digit_grouping(cleaned, column, name, decimal, source, lines)
+    _refuse_digit_grouping(cleaned, column, name, decimal, source, lines, comma_file)
     numeric_text = cleaned.str.replace(",", ".", regex=False) if decimal == "," else cleaned
     with np.errstate(over="ignore", invalid="ignore"):
         numbers = pd.to_numeric(numeric_text.where(~is_code, None), errors="coerce").to_numpy(
@@ -2193,15 +2201,21 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
 
 
 def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: str,
-                           source: str, lines: np.ndarray) -> None:
+                           source: str, lines: np.ndarray, comma_file: bool = False) -> None:
     """Raise where numbers are written with thousands separators (a spreadsheet's format).
 
     With ``decimal = ","`` a "1.034" read with the point dropped by the comma rule would be
     1.034, not 1034 (an Rg or PPFD above 1000 turned into a value near 1, silently); a
-    "1.034,5" or "1,034.5" is not a number at all. A "1.034" counts as grouped only in a
-    column that uses decimal commas elsewhere (a column written with decimal points is
-    read as such), and a "1,034" with ``decimal = "."`` only in a column that uses decimal
-    points elsewhere (the decimal-comma hint would have turned 1034 into 1.034).
+    "1.034,5" or "1,034.5" is not a number at all. A "1.034" counts as grouped in a
+    column that uses decimal commas elsewhere, and in a column without them only where
+    other columns of the file hold decimal commas (`comma_file`) and every cell of the
+    column with a point is grouped in threes (a spreadsheet saves a PPFD or Rg column
+    formatted as whole numbers with a thousands separator, "0", "12", "1.034", beside
+    decimal-comma columns: read alone, 1034 became 1.034); a column with other points
+    ("0.187", "12.5") is read with decimal points (a mixed export). A "1,034" with
+    ``decimal = "."`` counts only in a column that uses decimal points elsewhere (the
+    decimal-comma hint would have turned 1034 into 1.034). A file declared
+    ``decimal = ","`` without a decimal comma in any column is read with decimal points.
     """
     grouping = "." if decimal == "," else ","
     candidates = cleaned.str.contains(grouping, regex=False).to_numpy(dtype=bool)
@@ -2210,7 +2224,8 @@ def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: 
     pattern = _DIGIT_GROUPING[decimal]
     cells = cleaned[candidates]
     grouped = cells.str.fullmatch(pattern).to_numpy(dtype=bool)
-    if not cleaned.str.contains(decimal, regex=False).any():
+    if not cleaned.str.contains(decimal, regex=False).any() and not (
+            comma_file and grouped.all()):
         # "1.034" (decimal comma) or "1,034" (decimal point) without the decimal mark in
         # the column: it may be a decimal mark of the other kind, named as such elsewhere
         grouped = grouped & cells.str.contains(decimal, regex=False).to_numpy(dtype=bool)

@@ -255,6 +255,23 @@ def test_thousands_separator_beside_decimal_comma_is_refused(example, tmp_path, 
     assert "add it to [input] missing" not in line
 
 
+def test_grouped_whole_numbers_beside_decimal_comma_columns_are_refused(example, tmp_path,
+                                                                        capsys):
+    """Rg formatted as whole numbers with digit grouping ("0", "12", "1.034") in a file
+    whose other columns hold decimal commas: the column has no comma of its own, and every
+    1034 W m-2 was read as 1.034 without a word (review round twelve, with PPFD up to
+    2100). The convention: a decimal-comma locale groups thousands with '.', as German
+    spreadsheets write them (common practice)."""
+    def solar(cell):
+        value = round(float(cell) * 1.2)
+        return cell if cell == "-9999" else f"{value:,d}".replace(",", ".")
+
+    config = _decimal_comma_example(example, tmp_path, "whole.csv", solar)
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "'solar_down' (rg)" in line and "thousands separator" in line
+
+
 def test_decimal_points_in_a_decimal_comma_file_still_read(example, tmp_path):
     """A column written with decimal points in a file declared decimal = "," (a mixed
     export) reads as before: a '.' counts as digit grouping only where the column also
