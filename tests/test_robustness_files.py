@@ -557,3 +557,23 @@ def test_file_without_header_line_is_named_as_such(example, tmp_path, capsys):
                             "\n".join([lines[0].replace("stamp_end", "stamp")] + lines[1:]))
     assert main(["check", str(renamed)]) == 2
     assert "names are numbers" not in _one_error(capsys)
+
+
+def test_fortran_double_precision_exponent_is_named(example, tmp_path, capsys):
+    """NEE written by a Fortran program's double-precision format ('-3.292000D-01'; the D
+    edit descriptor writes D as the exponent letter, Fortran standard (m)) is named as
+    such, not met with 'add it to [input] missing', which would blank the column (review
+    round twelve)."""
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    column = lines[0].split(",").index("co2_exchange")
+    rows = [lines[0]]
+    for line in lines[1:]:
+        cells = line.split(",")
+        if cells[column] != "-9999":
+            cells[column] = f"{float(cells[column]):.6E}".replace("E", "D")
+        rows.append(",".join(cells))
+    config = _with_records(example, tmp_path, "fortran.csv", "\n".join(rows) + "\n")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "'co2_exchange' (nee)" in line and "Fortran" in line and "write E for D" in line
+    assert "add it to [input] missing" not in line
