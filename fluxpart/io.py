@@ -1040,8 +1040,12 @@ def _resolve_paths(value, folder: Path) -> tuple:
             matches = sorted(Path(p) for p in glob.glob(pattern, recursive=True)
                              if Path(p).is_file())
             if not matches:
+                # a glob's backslash is part of a name outside Windows (as for one file)
+                slashes = ("; write the path with forward slashes ('/'), which work on every "
+                           "system: a backslash is part of the file name outside Windows"
+                           if "\\" in item else "")
                 raise ConfigError(f"[input] path = {setting_text(item)} matches no file in "
-                                  f"{str(Path(pattern).parent)!r}")
+                                  f"{str(Path(pattern).parent)!r}{slashes}")
             configs = [p for p in matches if p.suffix.lower() == ".toml"]
             if configs:
                 # a pattern as wide as "*" also takes the site config (and its neighbours)

@@ -215,6 +215,11 @@ def test_windows_backslash_path_gets_the_forward_slash_hint(example, tmp_path, c
     config.write_text(config.read_text(encoding="utf-8").replace(
         "path = 'data\\tower.csv'", 'path = "data/tower.csv"'), encoding="utf-8")
     assert main(["check", str(config)]) == 0
+    # a glob written so (review round twelve: "matches no file" without the hint)
+    _configure(example, config, "path = 'data\\tow*.csv'")
+    assert main(["check", str(config)]) == 2
+    line = _one_error(capsys)
+    assert "matches no file" in line and "forward slashes" in line
 
 
 def _decimal_comma_example(example, tmp_path, name, solar):
