@@ -781,6 +781,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     if not parts:
         raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
                              f"{empty[0]!r}); check [input] path")
+    header_rows = _header_rows_warning(parts)
+    if header_rows:
+        warnings.append(header_rows)
     parts, absent = _fill_lacking(parts, mapping, time_columns, warnings)
     combined = _combine(parts)
     if combined["completed_stamps"]:
@@ -1737,6 +1740,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
                 time_zone=time_zone)
     return {
+        "header_rows": _header_rows(text, header, read, delimiter, rows_before_header,
+                                    rows_after_header),
         "source": source, "encoding": used_encoding, "mapping": mapping,
         "flag_columns": flag_columns, "lacking": lacking, "file_columns": list(raw.columns),
         "stamps": stamps, "lines": lines[keep],
@@ -1752,6 +1757,46 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                            if parsed.rounded_to_minute else {}),
                         **({"date_only": parsed.date_only} if parsed.date_only else {})},
     }
+
+
+def _header_rows(text: str, header: list, read: dict, delimiter: str,
+                 rows_before_header: int, rows_after_header: int) -> dict:
+    """The cells of each column read on the ``rows_after_header`` lines (its unit,
+    statistic), ``{name: (column, cells)}``; empty without such lines."""
+    if not rows_after_header:
+        return {}
+    text_lines = text.splitlines()[rows_before_header + 1:
+                                   rows_before_header + 1 + rows_after_header]
+    rows = [[cell.strip() for cell in (
+        line.split() if delimiter == _WHITESPACE
+        else next(csv.reader([line], delimiter=delimiter), []))] for line in text_lines]
+    return {name: (column, tuple(row[header.index(column)] if header.index(column) < len(row)
+                                 else "" for row in rows))
+            for name, column in read.items() if column in header}
+
+
+def _header_rows_warning(parts: list) -> str | None:
+    """A warning naming the columns whose lines under the header (a units line) differ
+    between input files: a unit changed during the record, which one ``[input.units]``
+    cannot read, and which the value checks see only where the values give it away."""
+    differing = []
+    for name, (column, _) in parts[0]["header_rows"].items():
+        seen: dict = {}
+        for part in parts:
+            other = part["header_rows"].get(name)
+            if other is not None:
+                seen.setdefault(other[1], part["source"])
+        if len(seen) > 1:
+            (first, first_source), (second, second_source) = list(seen.items())[:2]
+            differing.append(f"{column!r} ({name.split(':')[0]}) has "
+                             f"{' | '.join(first)!r} in {first_source!r} but "
+                             f"{' | '.join(second)!r} in {second_source!r}")
+    if not differing:
+        return None
+    return ("the lines under the header ([input] rows_after_header: units, statistics) differ "
+            f"between input files: {'; '.join(differing)}. A unit changed during the record "
+            "is read with one [input.units] for every file: convert the values of one unit "
+            "in a copy of those files (where only the spelling differs, nothing is wrong)")
 
 
 def _refuse_skipped_record(path: Path, text: str, header: list, time_columns: tuple,
