@@ -1700,8 +1700,12 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter, rows_before_header,
                                                      rows_after_header, warnings)
-    mapping, flag_columns, lacking = _resolve_columns(
-        columns, units, list(raw.columns), header, time_columns, flag_columns, path, may_lack)
+    try:
+        mapping, flag_columns, lacking = _resolve_columns(
+            columns, units, list(raw.columns), header, time_columns, flag_columns, path,
+            may_lack)
+    except MissingColumnError as error:
+        raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}") from None
     source = str(path)
     stamp_text = join_time_columns(raw, time_columns)
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
@@ -1797,6 +1801,22 @@ def _header_rows_warning(parts: list) -> str | None:
             f"between input files: {'; '.join(differing)}. A unit changed during the record "
             "is read with one [input.units] for every file: convert the values of one unit "
             "in a copy of those files (where only the spelling differs, nothing is wrong)")
+
+
+def _utf8_hint(header: list, encoding: str) -> str:
+    """A hint where names of a header decoded with a single-byte `encoding` are UTF-8 text
+    ('Â°C' for '°C': each non-ASCII character read as two), else ""."""
+    if encoding.replace("_", "-").lower().startswith(("utf-8", "utf-16", "utf8", "utf16")):
+        return ""
+    for name in header:
+        try:
+            fixed = str(name).encode(encoding).decode("utf-8")
+        except (UnicodeEncodeError, UnicodeDecodeError, LookupError):
+            continue
+        if fixed != name:
+            return (f"; the header is UTF-8 text read as {encoding} ({name!r} is {fixed!r} in "
+                    "UTF-8): set [input] encoding = \"utf-8\" (or leave encoding out)")
+    return ""
 
 
 def _refuse_skipped_record(path: Path, text: str, header: list, time_columns: tuple,
