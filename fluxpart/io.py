@@ -1389,6 +1389,19 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             f"input file {str(path)!r}: the header (line {rows_before_header + 1}) separates "
             "its names by runs of spaces, which [input] delimiter = \" \" reads as empty "
             "columns: set [input] delimiter = \"whitespace\"")
+    following = text.splitlines()[rows_before_header:rows_before_header + 2]
+    reader = csv.reader(iter(following), delimiter=delimiter if delimiter != _WHITESPACE
+                        else " ")
+    next(reader, None)
+    if rows_after_header and reader.line_num > 1:
+        # a quoted name holding a line break (spreadsheets allow one in a cell): the
+        # header runs on over the next line, which rows_after_header would skip
+        raise InputFileError(
+            f"input file {str(path)!r}: the header (line {rows_before_header + 1}: "
+            f"{_shown_line(following[0])!r}) opens a quoted name that goes on to the next "
+            "line (a line break within a header cell), so the lines of [input] "
+            "rows_after_header cannot be counted under it; remove the line break from the "
+            "name in a copy of the file")
     if delimiter == _WHITESPACE:
         options["sep"] = r"\s+"
     else:

@@ -605,3 +605,36 @@ def test_utf8_file_declared_single_byte_names_the_encoding(example, tmp_path, ca
     config.write_text(config.read_text(encoding="utf-8").replace(
         f'encoding = "{declared}"', ""), encoding="utf-8")
     assert main(["check", str(config)]) == 0
+
+
+def test_line_break_in_a_header_name_with_a_units_line_is_named(example, tmp_path, capsys):
+    """A header cell holding a line break ('"air temp\\n(degC)"', a spreadsheet cell written
+    on two lines; RFC 4180 lets a quoted field hold one) makes the header two lines long.
+    Without rows_after_header the file reads like the plain one; with a units line under
+    it the error named an unclosed quote, which the next line closes (review round
+    twelve); it now names the line break. A quote inside an unquoted name ('depth 3"')
+    is no such break."""
+    from fluxpart.io import read_config
+
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    broken = lines[0].replace("air_temp_c", '"air temp\n(degC)"')
+    mapped = 'tair = "air temp\\n(degC)"'
+    config = _with_records(example, tmp_path, "two.csv", "\n".join([broken] + lines[1:]))
+    config.write_text(config.read_text(encoding="utf-8").replace('tair = "air_temp_c"',
+                                                                 mapped), encoding="utf-8")
+    assert read_config(config)[0].equals(read_config(example)[0])
+    units = ",".join(["-"] * len(lines[0].split(",")))
+    config = _with_records(example, tmp_path, "units.csv",
+                           "\n".join([broken, units] + lines[1:]))
+    config.write_text(config.read_text(encoding="utf-8").replace(
+        'tair = "air_temp_c"', mapped).replace('path = "units.csv"',
+                                               'path = "units.csv"\nrows_after_header = 1'),
+        encoding="utf-8")
+    assert main(["check", str(config)]) == 2
+    assert "line break within a header cell" in _one_error(capsys)
+    inches = lines[0].replace("soil_temp_5cm", 'soil_temp_2"')
+    config = _with_records(example, tmp_path, "inch.csv", "\n".join([inches, units] + lines[1:]))
+    config.write_text(config.read_text(encoding="utf-8").replace(
+        'tsoil = "soil_temp_5cm"', "tsoil = 'soil_temp_2\"'").replace(
+        'path = "inch.csv"', 'path = "inch.csv"\nrows_after_header = 1'), encoding="utf-8")
+    assert read_config(config)[0].equals(read_config(example)[0])
