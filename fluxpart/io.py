@@ -1442,7 +1442,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     first_line = rows_before_header + rows_after_header + 2
     raw = _trailing_fields(path, raw, first_line)
     blank = _blank_rows(raw)
-    lines = np.arange(len(raw)) + first_line
+    lines = _record_lines(text, first_line, len(raw), delimiter)
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
     _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
@@ -1537,6 +1537,27 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int) -> pd.DataF
             "line(s) hold values beyond the last named column. Is a column name missing in "
             "the header, or is [input] delimiter wrong? Correct a copy of the file")
     return pd.DataFrame(dict(zip(raw.columns, cells[:width], strict=True)))
+
+
+def _record_lines(text: str, first_line: int, count: int, delimiter: str) -> np.ndarray:
+    """The line of the file on which each of the `count` rows read from `first_line` on
+    begins: one line each, unless quoted values hold line breaks (a note column written
+    "rain,\nheavy"), where the csv module tells where each record starts."""
+    if '"' not in text or delimiter == _WHITESPACE:
+        return np.arange(count) + first_line
+    text_lines = text.splitlines()[first_line - 1:]
+    if len(text_lines) == count:
+        return np.arange(count) + first_line
+    reader = csv.reader(iter(text_lines), delimiter=delimiter)
+    starts = []
+    while len(starts) < count:
+        start = reader.line_num
+        if next(reader, None) is None:
+            break
+        starts.append(start)
+    if len(starts) != count:
+        return np.arange(count) + first_line
+    return np.asarray(starts) + first_line
 
 
 def _blank_rows(raw: pd.DataFrame) -> np.ndarray:

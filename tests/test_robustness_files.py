@@ -638,3 +638,26 @@ def test_line_break_in_a_header_name_with_a_units_line_is_named(example, tmp_pat
         'tsoil = "soil_temp_5cm"', "tsoil = 'soil_temp_2\"'").replace(
         'path = "inch.csv"', 'path = "inch.csv"\nrows_after_header = 1'), encoding="utf-8")
     assert read_config(config)[0].equals(read_config(example)[0])
+
+
+def test_line_numbers_count_line_breaks_inside_quoted_values(example, tmp_path, capsys):
+    """A note column whose quoted values hold line breaks ('"rain,\\nheavy"', RFC 4180)
+    reads like the plain file, and an error after such notes names the file's own line
+    (review round twelve: it named the record's count, two lines early after two notes)."""
+    from fluxpart.io import read_config
+
+    lines = example.with_suffix(".csv").read_text().splitlines()
+    rows = [lines[0] + ",note"] + [line + (',"rain,\nheavy"' if i in (10, 20) else ",")
+                                   for i, line in enumerate(lines[1:])]
+    config = _with_records(example, tmp_path, "notes.csv", "\n".join(rows) + "\n")
+    assert read_config(config)[0].equals(read_config(example)[0])
+    column = lines[0].split(",").index("air_temp_c")
+    cells = rows[100].split(",")
+    cells[column] = "bad"
+    rows[100] = ",".join(cells)
+    physical = "\n".join(rows).splitlines()
+    expected = next(n for n, line in enumerate(physical, 1) if ",bad," in line)
+    assert expected == 103            # header, 99 records and two notes of two lines
+    config = _with_records(example, tmp_path, "bad.csv", "\n".join(rows) + "\n")
+    assert main(["check", str(config)]) == 2
+    assert f"line {expected} of" in _one_error(capsys)
