@@ -126,6 +126,10 @@ _DIGIT_GROUPING = {",": re.compile(r"[+-]?[1-9]\d{0,2}(?:\.\d{3})+(?:,\d*)?"),
                    ".": re.compile(r"[+-]?[1-9]\d{0,2}(?:,\d{3})+(?:\.\d*)?")}
 #: Digit grouping by a character that is never a decimal mark: an apostrophe (Swiss
 #: spreadsheets), a right single quote, or a space (plain, no-break, narrow no-break, thin).
+#: A number written by Fortran's double-precision format (D as the exponent letter).
+_FORTRAN_EXPONENT = re.compile(r"[+-]?(?:\d+\.?\d*|\.\d+)[dD][+-]?\d+")
+#: A header cell that is a number (point or comma decimal): the line is a record, not names.
+_NUMBER_NAME = re.compile(r"[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?")
 _OTHER_GROUPING = re.compile(r"[+-]?[1-9]\d{0,2}(?:['\u2019 \u00a0\u202f\u2009]\d{3})+(?:[.,]\d*)?")
 
 
@@ -777,6 +781,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     if not parts:
         raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
                              f"{empty[0]!r}); check [input] path")
+    header_rows = _header_rows_warning(parts)
+    if header_rows:
+        warnings.append(header_rows)
     parts, absent = _fill_lacking(parts, mapping, time_columns, warnings)
     combined = _combine(parts)
     if combined["completed_stamps"]:
@@ -1036,8 +1043,12 @@ def _resolve_paths(value, folder: Path) -> tuple:
             matches = sorted(Path(p) for p in glob.glob(pattern, recursive=True)
                              if Path(p).is_file())
             if not matches:
+                # a glob's backslash is part of a name outside Windows (as for one file)
+                slashes = ("; write the path with forward slashes ('/'), which work on every "
+                           "system: a backslash is part of the file name outside Windows"
+                           if "\\" in item else "")
                 raise ConfigError(f"[input] path = {setting_text(item)} matches no file in "
-                                  f"{str(Path(pattern).parent)!r}")
+                                  f"{str(Path(pattern).parent)!r}{slashes}")
             configs = [p for p in matches if p.suffix.lower() == ".toml"]
             if configs:
                 # a pattern as wide as "*" also takes the site config (and its neighbours)
@@ -1378,6 +1389,19 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             f"input file {str(path)!r}: the header (line {rows_before_header + 1}) separates "
             "its names by runs of spaces, which [input] delimiter = \" \" reads as empty "
             "columns: set [input] delimiter = \"whitespace\"")
+    following = text.splitlines()[rows_before_header:rows_before_header + 2]
+    reader = csv.reader(iter(following), delimiter=delimiter if delimiter != _WHITESPACE
+                        else " ")
+    next(reader, None)
+    if rows_after_header and reader.line_num > 1:
+        # a quoted name holding a line break (spreadsheets allow one in a cell): the
+        # header runs on over the next line, which rows_after_header would skip
+        raise InputFileError(
+            f"input file {str(path)!r}: the header (line {rows_before_header + 1}: "
+            f"{_shown_line(following[0])!r}) opens a quoted name that goes on to the next "
+            "line (a line break within a header cell), so the lines of [input] "
+            "rows_after_header cannot be counted under it; remove the line break from the "
+            "name in a copy of the file")
     if delimiter == _WHITESPACE:
         options["sep"] = r"\s+"
     else:
@@ -1418,7 +1442,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     first_line = rows_before_header + rows_after_header + 2
     raw = _trailing_fields(path, raw, first_line)
     blank = _blank_rows(raw)
-    lines = np.arange(len(raw)) + first_line
+    lines = _record_lines(text, first_line, len(raw), delimiter)
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
     _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
@@ -1513,6 +1537,27 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int) -> pd.DataF
             "line(s) hold values beyond the last named column. Is a column name missing in "
             "the header, or is [input] delimiter wrong? Correct a copy of the file")
     return pd.DataFrame(dict(zip(raw.columns, cells[:width], strict=True)))
+
+
+def _record_lines(text: str, first_line: int, count: int, delimiter: str) -> np.ndarray:
+    """The line of the file on which each of the `count` rows read from `first_line` on
+    begins: one line each, unless quoted values hold line breaks (a note column written
+    "rain,\nheavy"), where the csv module tells where each record starts."""
+    if '"' not in text or delimiter == _WHITESPACE:
+        return np.arange(count) + first_line
+    text_lines = text.splitlines()[first_line - 1:]
+    if len(text_lines) == count:
+        return np.arange(count) + first_line
+    reader = csv.reader(iter(text_lines), delimiter=delimiter)
+    starts = []
+    while len(starts) < count:
+        start = reader.line_num
+        if next(reader, None) is None:
+            break
+        starts.append(start)
+    if len(starts) != count:
+        return np.arange(count) + first_line
+    return np.asarray(starts) + first_line
 
 
 def _blank_rows(raw: pd.DataFrame) -> np.ndarray:
@@ -1689,8 +1734,12 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter, rows_before_header,
                                                      rows_after_header, warnings)
-    mapping, flag_columns, lacking = _resolve_columns(
-        columns, units, list(raw.columns), header, time_columns, flag_columns, path, may_lack)
+    try:
+        mapping, flag_columns, lacking = _resolve_columns(
+            columns, units, list(raw.columns), header, time_columns, flag_columns, path,
+            may_lack)
+    except MissingColumnError as error:
+        raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}") from None
     source = str(path)
     stamp_text = join_time_columns(raw, time_columns)
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
@@ -1703,9 +1752,12 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     read = {name: column for name, column in mapping.items() if (name, column) not in lacking}
     read |= {_flag_key(column): column for column in flag_columns
              if ("nee_flag", column) not in lacking}
+    # decimal commas in the file's other columns: its whole numbers "1.034" are grouped
+    comma_file = decimal == "," and any(
+        raw[column].str.contains(",", regex=False).any() for column in read.values())
     for name, column in read.items():
         numbers, n_missing, absurd = _numbers(raw[column], column, name, missing, decimal,
-                                              source, lines)
+                                              source, lines, comma_file)
         values[name], missing_cells[name], nonfinite[name] = numbers, n_missing, int(absurd.sum())
         if absurd.any():
             warnings.append(f"column {column!r} ({name.split(':')[0]}): {int(absurd.sum())} "
@@ -1726,6 +1778,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
                 time_zone=time_zone)
     return {
+        "header_rows": _header_rows(text, header, read, delimiter, rows_before_header,
+                                    rows_after_header),
         "source": source, "encoding": used_encoding, "mapping": mapping,
         "flag_columns": flag_columns, "lacking": lacking, "file_columns": list(raw.columns),
         "stamps": stamps, "lines": lines[keep],
@@ -1741,6 +1795,62 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                            if parsed.rounded_to_minute else {}),
                         **({"date_only": parsed.date_only} if parsed.date_only else {})},
     }
+
+
+def _header_rows(text: str, header: list, read: dict, delimiter: str,
+                 rows_before_header: int, rows_after_header: int) -> dict:
+    """The cells of each column read on the ``rows_after_header`` lines (its unit,
+    statistic), ``{name: (column, cells)}``; empty without such lines."""
+    if not rows_after_header:
+        return {}
+    text_lines = text.splitlines()[rows_before_header + 1:
+                                   rows_before_header + 1 + rows_after_header]
+    rows = [[cell.strip() for cell in (
+        line.split() if delimiter == _WHITESPACE
+        else next(csv.reader([line], delimiter=delimiter), []))] for line in text_lines]
+    return {name: (column, tuple(row[header.index(column)] if header.index(column) < len(row)
+                                 else "" for row in rows))
+            for name, column in read.items() if column in header}
+
+
+def _header_rows_warning(parts: list) -> str | None:
+    """A warning naming the columns whose lines under the header (a units line) differ
+    between input files: a unit changed during the record, which one ``[input.units]``
+    cannot read, and which the value checks see only where the values give it away."""
+    differing = []
+    for name, (column, _) in parts[0]["header_rows"].items():
+        seen: dict = {}
+        for part in parts:
+            other = part["header_rows"].get(name)
+            if other is not None:
+                seen.setdefault(other[1], part["source"])
+        if len(seen) > 1:
+            (first, first_source), (second, second_source) = list(seen.items())[:2]
+            differing.append(f"{column!r} ({name.split(':')[0]}) has "
+                             f"{' | '.join(first)!r} in {first_source!r} but "
+                             f"{' | '.join(second)!r} in {second_source!r}")
+    if not differing:
+        return None
+    return ("the lines under the header ([input] rows_after_header: units, statistics) differ "
+            f"between input files: {'; '.join(differing)}. A unit changed during the record "
+            "is read with one [input.units] for every file: convert the values of one unit "
+            "in a copy of those files (where only the spelling differs, nothing is wrong)")
+
+
+def _utf8_hint(header: list, encoding: str) -> str:
+    """A hint where names of a header decoded with a single-byte `encoding` are UTF-8 text
+    ('Â°C' for '°C': each non-ASCII character read as two), else ""."""
+    if encoding.replace("_", "-").lower().startswith(("utf-8", "utf-16", "utf8", "utf16")):
+        return ""
+    for name in header:
+        try:
+            fixed = str(name).encode(encoding).decode("utf-8")
+        except (UnicodeEncodeError, UnicodeDecodeError, LookupError):
+            continue
+        if fixed != name:
+            return (f"; the header is UTF-8 text read as {encoding} ({name!r} is {fixed!r} in "
+                    "UTF-8): set [input] encoding = \"utf-8\" (or leave encoding out)")
+    return ""
 
 
 def _refuse_skipped_record(path: Path, text: str, header: list, time_columns: tuple,
@@ -2068,6 +2178,10 @@ def _near(name: str, options: list, taken=()) -> str:
         stripped = [o for o in free if o.strip() == name.strip()]
         close = stripped[:1]
     if not close:
+        # another case ("CO2_FLUX" for "co2_flux"), which difflib scores as far apart
+        folded = [o for o in free if o.strip().casefold() == name.strip().casefold()]
+        close = folded[:1]
+    if not close:
         return ""
     if unicodedata.normalize("NFKC", close[0]) == unicodedata.normalize("NFKC", name):
         # shown alike by most fonts (a Greek mu typed for the file's micro sign)
@@ -2100,6 +2214,13 @@ def _columns_listing(file_columns: list) -> str:
         # the parser's name for an empty header cell, e.g. a table saved with its row index
         listing += (f"; column {unnamed[0]} has no name in the header (a table saved with "
                     "its row index?): name it in the header of a copy of the file")
+    numbers = sum(bool(_NUMBER_NAME.fullmatch(str(c).strip())) for c in file_columns)
+    if numbers * 2 > len(file_columns):
+        # a file without a header line (names kept in another file, an array saved without
+        # them): its first record was read as the names
+        listing += (f"; {numbers} of these {len(file_columns)} names are numbers, so the line "
+                    "read as the header is a record: fluxpart finds columns by their names in "
+                    "a header line; add one in a copy of the file")
     return listing
 
 
@@ -2131,8 +2252,13 @@ def _plain_numbers(text: pd.Series, decimal: str):
 
 
 def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: str,
-             source: str, lines: np.ndarray) -> tuple[np.ndarray, int, np.ndarray]:
-    """Parse a text column to float; return values, missing-code count, non-finite mask."""
+             source: str, lines: np.ndarray, comma_file: bool = False
+             ) -> tuple[np.ndarray, int, np.ndarray]:
+    """Parse a text column to float; return values, missing-code count, non-finite mask.
+
+    `comma_file`: other columns of the file hold decimal commas (see
+    :func:`_refuse_digit_grouping`).
+    """
     plain = _plain_numbers(text, decimal)
     if plain is not None:
         # every cell is empty or a finite number: text missing codes can only match as
@@ -2145,7 +2271,7 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
     string_codes = {str(c).strip().casefold() for c in missing if isinstance(c, str)}
     is_code = folded.isin(string_codes).to_numpy() | (cleaned == "").to_numpy() \
         | folded.isin(_FLOAT_SPELLINGS_OF_NAN).to_numpy()
-    _refuse_digit_grouping(cleaned, column, name, decimal, source, lines)
+    _refuse_digit_grouping(cleaned, column, name, decimal, source, lines, comma_file)
     numeric_text = cleaned.str.replace(",", ".", regex=False) if decimal == "," else cleaned
     with np.errstate(over="ignore", invalid="ignore"):
         numbers = pd.to_numeric(numeric_text.where(~is_code, None), errors="coerce").to_numpy(
@@ -2166,6 +2292,10 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
             hint = ("; it is a number with digit grouping (a thousands separator): write the "
                     "numbers without digit grouping in a copy of the file (a spreadsheet's "
                     "number format without the 1000 separator)")
+        elif _FORTRAN_EXPONENT.fullmatch(cell):
+            # listed as a missing code it would blank the whole column
+            hint = ("; it is a number with a Fortran double-precision exponent (D for E: "
+                    "1.5D+02 is 150), which is not read: write E for D in a copy of the file")
         elif name.startswith("nee_flag"):
             # a missing flag rejects nothing, so "add it to missing" would keep bad records
             hint = ("; site flags must be numbers (a record is kept where its flag is in "
@@ -2180,15 +2310,21 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
 
 
 def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: str,
-                           source: str, lines: np.ndarray) -> None:
+                           source: str, lines: np.ndarray, comma_file: bool = False) -> None:
     """Raise where numbers are written with thousands separators (a spreadsheet's format).
 
     With ``decimal = ","`` a "1.034" read with the point dropped by the comma rule would be
     1.034, not 1034 (an Rg or PPFD above 1000 turned into a value near 1, silently); a
-    "1.034,5" or "1,034.5" is not a number at all. A "1.034" counts as grouped only in a
-    column that uses decimal commas elsewhere (a column written with decimal points is
-    read as such), and a "1,034" with ``decimal = "."`` only in a column that uses decimal
-    points elsewhere (the decimal-comma hint would have turned 1034 into 1.034).
+    "1.034,5" or "1,034.5" is not a number at all. A "1.034" counts as grouped in a
+    column that uses decimal commas elsewhere, and in a column without them only where
+    other columns of the file hold decimal commas (`comma_file`) and every cell of the
+    column with a point is grouped in threes (a spreadsheet saves a PPFD or Rg column
+    formatted as whole numbers with a thousands separator, "0", "12", "1.034", beside
+    decimal-comma columns: read alone, 1034 became 1.034); a column with other points
+    ("0.187", "12.5") is read with decimal points (a mixed export). A "1,034" with
+    ``decimal = "."`` counts only in a column that uses decimal points elsewhere (the
+    decimal-comma hint would have turned 1034 into 1.034). A file declared
+    ``decimal = ","`` without a decimal comma in any column is read with decimal points.
     """
     grouping = "." if decimal == "," else ","
     candidates = cleaned.str.contains(grouping, regex=False).to_numpy(dtype=bool)
@@ -2197,7 +2333,8 @@ def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: 
     pattern = _DIGIT_GROUPING[decimal]
     cells = cleaned[candidates]
     grouped = cells.str.fullmatch(pattern).to_numpy(dtype=bool)
-    if not cleaned.str.contains(decimal, regex=False).any():
+    if not cleaned.str.contains(decimal, regex=False).any() and not (
+            comma_file and grouped.all()):
         # "1.034" (decimal comma) or "1,034" (decimal point) without the decimal mark in
         # the column: it may be a decimal mark of the other kind, named as such elsewhere
         grouped = grouped & cells.str.contains(decimal, regex=False).to_numpy(dtype=bool)

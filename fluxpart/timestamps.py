@@ -58,6 +58,16 @@ _HOUR_24 = (
 )
 
 
+#: Abbreviations of a standard time that are also zone names of the time-zone database,
+#: where those zones keep summer time: as a zone, "CET" reads July's 12:00 as 12:00 CEST
+#: (UTC+2). Written beside a stamp the abbreviation is the standard time itself (CET =
+#: UTC+1 all year; CEST names the summer time), so each is read as its fixed offset, a
+#: zone "Etc/GMT-h" (POSIX sign: Etc/GMT-1 is UTC+1). Offsets: the abbreviations'
+#: definitions in the IANA time-zone database's "europe" file (m).
+_STANDARD_TIME_LABELS = {"CET": "Etc/GMT-1", "MET": "Etc/GMT-1", "EET": "Etc/GMT-2",
+                         "WET": "Etc/GMT"}
+_STANDARD_TIME_LABEL = re.compile(r"(?<![A-Za-z/])(CET|MET|EET|WET)(?![A-Za-z/])")
+
 #: IANA zone names (or their first part) that denote a fixed offset rather than a place.
 _OFFSET_ZONE_PREFIXES = frozenset({"UTC", "Etc", "GMT", "UCT", "Zulu", "Universal"})
 #: Zone names of UTC itself: stamps that carry their offset agree with any of them.
@@ -290,6 +300,15 @@ def _round_to_minute(index: pd.DatetimeIndex) -> tuple[pd.DatetimeIndex, int]:
     return rounded, moved
 
 
+def _standard_time_labels(text: pd.Series, time_format: str) -> pd.Series:
+    """Under ``%Z``, the text with the standard-time labels CET, MET, EET and WET as the
+    fixed-offset zones they mean (see ``_STANDARD_TIME_LABELS``); else `text` as it is."""
+    if "%Z" not in time_format:
+        return text
+    return text.str.replace(_STANDARD_TIME_LABEL,
+                            lambda match: _STANDARD_TIME_LABELS[match[1]], regex=True)
+
+
 def _carries_offset(text: pd.Series, time_format: str) -> bool:
     if "%z" in time_format or "%Z" in time_format:
         return True
@@ -499,11 +518,12 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                 f"{text.iloc[first]!r} without a UTC offset while other stamps carry one; "
                 f"{int(naive.sum())} such stamp(s): give every stamp its offset")
     text = _pad_clock_fields(text, time_format)
-    parsed = _to_datetime(text, time_format, utc=with_offset)
+    readable = _standard_time_labels(text, time_format)
+    parsed = _to_datetime(readable, time_format, utc=with_offset)
     failed = parsed.isna().to_numpy()
     is_24 = np.zeros(len(text), dtype=bool)
     if failed.any():
-        rewritten, is_24 = _hour_24(text, failed, time_format)
+        rewritten, is_24 = _hour_24(readable, failed, time_format)
         if is_24.any():
             again = _to_datetime(rewritten[is_24], time_format, utc=with_offset)
             parsed = parsed.copy()
@@ -538,10 +558,12 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
         elif "%Z" in time_format and re.search(r"\s[A-Za-z]{2,6}$", text.iloc[first]):
-            # %Z reads UTC, GMT and zone names of the time-zone database (CET, EST), not
-            # summer-time abbreviations (CEST, BST, PDT), several of which are ambiguous
+            # %Z reads UTC, GMT, the standard times CET, MET, EET, WET and zone names of
+            # the time-zone database (EST), not summer-time abbreviations (CEST, BST,
+            # PDT), several of which are ambiguous
             hint = (f"; the zone abbreviation {text.iloc[first].split()[-1]!r} is not read "
-                    "(only UTC, GMT and time-zone database names such as CET): write the "
+                    "(only UTC, GMT, the standard times CET, MET, EET, WET and time-zone "
+                    "database names such as EST): write the "
                     "stamps with a numeric offset (+02:00, %z), or without the abbreviation "
                     "and with [input] time_zone = \"Area/City\"")
         elif _numeric_clock(text):

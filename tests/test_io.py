@@ -1873,3 +1873,43 @@ def test_a_zone_without_summer_time_in_the_record_says_nothing_moved():
     assert text == "civil time of UTC: no daylight-saving stamp, nothing moved"
     assert "3 daylight-saving stamp(s) moved back one hour" in _conversion_text(
         {"time_zone": "Europe/Berlin", "daylight_saving": 3})
+
+
+def test_mapped_name_in_another_case_is_suggested(tmp_path):
+    """A column written in capitals ('CO2_FLUX') for the mapped 'co2_flux' is named in the
+    refusal: difflib's similarity ratio of the two is 0.25 (Python's ``difflib``), below
+    any useful cutoff, so only a comparison without case finds it (review round twelve)."""
+    import difflib
+
+    assert difflib.SequenceMatcher(None, "co2_flux", "CO2_FLUX").ratio() < 0.6
+    path = _write(tmp_path / "t.csv", _records().rename(columns={"co2_flux": "CO2_FLUX"}))
+    with pytest.raises(MissingColumnError, match=r"nee = \"co2_flux\": no such column in "
+                       r".*\(did you mean 'CO2_FLUX'\?\)"):
+        _read(path)
+
+
+def test_units_line_that_differs_between_files_is_warned(tmp_path):
+    """Two files whose units lines name VPD in hPa and in kPa (a logger program changed
+    during the record) are read with one [input.units]; the value checks see the tenfold
+    change only in months that give it away, so the reader names the units lines that
+    differ, with both files (review round twelve: a kPa half-year without rh passed with
+    a warning for four of its six months). Outside fact: 1 kPa = 10 hPa (SI prefixes)."""
+    first, second = _records(), _records(start="2021-06-03 00:00")
+    units = "yyyy-mm-dd HH:MM,umol m-2 s-1,W m-2,degC,{vpd},m s-1,%,degC"
+    for name, records, vpd, factor in (("a.csv", first, "hPa", 1.0),
+                                       ("b.csv", second, "kPa", 0.1)):
+        written = records.assign(vpd_air=records["vpd_air"] * factor)
+        lines = _write(tmp_path / name, written).read_text().splitlines()
+        lines.insert(1, units.format(vpd=vpd))
+        (tmp_path / name).write_text("\n".join(lines) + "\n")
+    _, report = _read([tmp_path / "a.csv", tmp_path / "b.csv"], rows_after_header=1)
+    noted = [w for w in report.warnings if "lines under the header" in w]
+    assert len(noted) == 1
+    assert "'vpd_air' (vpd) has 'hPa' in" in noted[0] and "a.csv" in noted[0]
+    assert "but 'kPa' in" in noted[0] and "b.csv" in noted[0]
+    assert "co2_flux" not in noted[0]          # columns whose lines agree are not named
+    lines = (tmp_path / "b.csv").read_text().splitlines()
+    lines[1] = units.format(vpd="hPa")
+    (tmp_path / "b.csv").write_text("\n".join(lines) + "\n")
+    _, report = _read([tmp_path / "a.csv", tmp_path / "b.csv"], rows_after_header=1)
+    assert not [w for w in report.warnings if "lines under the header" in w]

@@ -5,7 +5,7 @@ Outside fact: the calendar and clock of Python's ``datetime`` (a record ending a
 """
 
 import re
-from datetime import datetime, timedelta
+from datetime import datetime, timedelta, timezone
 
 import numpy as np
 import pandas as pd
@@ -301,6 +301,30 @@ def test_summer_time_abbreviation_under_percent_capital_z_is_named():
     winter = parse_stamps(pd.Series(text[:1]), "%Y-%m-%d %H:%M %Z", time_columns=("stamp",),
                           source="t.csv", lines=np.arange(2, 3), utc_offset=1.0)
     assert list(winter.stamps) == [datetime(2021, 3, 28, 1, 30)]
+
+
+def test_standard_time_labels_under_percent_capital_z_are_fixed_offsets():
+    """A stamp labelled CET is standard time, UTC+1 all year, also in July; CEST names the
+    summer time (the abbreviations' definitions in the IANA time-zone database (m)). As a
+    zone of that database "CET" keeps summer time, so a July 12:00 CET was read as
+    10:00 UTC, an hour early (review round twelve: a summer file labelled CET moved every
+    record by an hour; a year's file was refused at its four spring-forward stamps).
+    Outside fact for the arithmetic: Python's ``datetime`` with fixed UTC offsets."""
+    stamps = [datetime(2021, 1, 15, 12, 0), datetime(2021, 3, 28, 2, 30),
+              datetime(2021, 7, 1, 12, 0), datetime(2021, 10, 31, 2, 30)]
+    for label, hours in (("CET", 1), ("MET", 1), ("EET", 2), ("WET", 0)):
+        text = pd.Series([f"{s:%Y-%m-%d %H:%M} {label}" for s in stamps])
+        parsed = parse_stamps(text, "%Y-%m-%d %H:%M %Z", time_columns=("stamp",),
+                              source="t.csv", lines=np.arange(2, 6), utc_offset=1.0)
+        utc = [s.replace(tzinfo=timezone(timedelta(hours=hours))).astimezone(timezone.utc)
+               for s in stamps]
+        assert list(parsed.stamps) == [u.replace(tzinfo=None) + timedelta(hours=1)
+                                       for u in utc], label
+    # a name that merely contains the letters is not a label ("Etc/GMT" is read as it is)
+    utc_text = pd.Series([f"{s:%Y-%m-%d %H:%M} Etc/GMT" for s in stamps])
+    parsed = parse_stamps(utc_text, "%Y-%m-%d %H:%M %Z", time_columns=("stamp",),
+                          source="t.csv", lines=np.arange(2, 6), utc_offset=1.0)
+    assert list(parsed.stamps) == [s + timedelta(hours=1) for s in stamps]
 
 
 def test_off_grid_warning_names_time_marks_only_where_they_explain_the_offset():
