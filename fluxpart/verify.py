@@ -73,6 +73,7 @@ from .config import Config
 from .errors import FluxpartError, InputFileError
 from .fingerprint import code_fingerprint, platform_differences, platform_record
 from .manifest import CAUTION, library_versions, read_manifest, recorded_path, without_paths
+from .resultdir import interrupted_writes
 from .store import file_sha256, read_table
 
 __all__ = ["NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference", "VerifyReport",
@@ -1080,6 +1081,14 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                              "config (fluxpart run) nor a demo seed (fluxpart demo), so the "
                              "result cannot be recomputed")
     notes, rounding = [], []
+    stopped = interrupted_writes(directory)
+    if stopped:
+        # a killed `fluxpart run` into this folder leaves the earlier result whole; without
+        # this note its verdict read as if the folder held that run's result
+        notes.append(f"{', '.join(stopped)} beside the folder: a fluxpart run into it is "
+                     "running now or was stopped before it finished; the folder holds the "
+                     "complete result named on the result: line, not that run's (the next "
+                     "run removes what a stopped one left)")
     if (directory / "report").exists():
         notes.append("report/: the page and its figures are drawn from the tables and are not "
                      "covered by the manifest's hashes, so they are not verified; redraw them "

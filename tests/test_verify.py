@@ -680,3 +680,22 @@ def test_a_computed_manifest_number_rounds_like_a_table_cell():
     again["config"]["despike_z"] = float(np.nextafter(4.0, np.inf))
     assert sorted((d.kind, d.column) for d in _compare_manifests(stored, again)) == [
         ("manifest", "config.despike_z"), ("manifest", "provenance.respiration_driver.sad.tair")]
+
+
+def test_verify_names_what_a_stopped_run_left_beside_the_folder(copy, capsys):
+    """A run killed (kill -9) into an earlier result leaves that result whole and its
+    staging folder beside it; verify said 'bit-identical' for the earlier result without
+    a word of the stopped run, which a user who started that run reads as its result.
+    The staging folder is made by the writer's own make_staging; the contract (README,
+    'Output files') is that the folder is the earlier complete result."""
+    from fluxpart.resultdir import make_staging
+
+    staging = make_staging(copy / "out")
+    shutil.copy(copy / "out" / "annual.parquet", staging)     # a half-written new result
+    assert main(["verify", str(copy / "out")]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("bit-identical")
+    assert f"note: {staging.name} beside the folder" in out and "stopped" in out
+    shutil.rmtree(staging)
+    assert main(["verify", str(copy / "out")]) == 0
+    assert "beside the folder" not in capsys.readouterr().out
