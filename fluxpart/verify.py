@@ -58,6 +58,7 @@ verification.
 
 from __future__ import annotations
 
+import hashlib
 import json
 import os
 import re
@@ -139,6 +140,7 @@ class Difference:
     recomputed: str = ""
     count: int = 1
     relative: float = float("nan")
+    cause: str = ""
 
     def describe(self) -> str:
         """Return one line naming the location and both values."""
@@ -155,6 +157,10 @@ class Difference:
         if self.kind == "more":
             return f"{self.table}: {self.count} more column(s) differ: {self.stored}"
         if self.kind == "input":
+            if self.cause:
+                return (f"{self.column} {self.row} has SHA-256 {self.recomputed}, but the "
+                        f"manifest records {self.stored}: {self.cause}, so nothing was "
+                        "recomputed")
             return (f"{self.column} {self.row} has SHA-256 {self.recomputed}, but the manifest "
                     f"records {self.stored}: it is not the {self.column} the result was "
                     "computed from, so nothing was recomputed")
@@ -898,9 +904,31 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
         actual = file_sha256(path)
         if actual != sha:
             return None, Difference("input", "input", column="input file", row=str(path),
-                                    stored=str(sha), recomputed=actual)
+                                    stored=str(sha), recomputed=actual,
+                                    cause=_line_ending_cause(path, sha))
         found.append(path)
     return (found if parts else found[0]), None
+
+
+def _line_ending_cause(path: Path, sha) -> str:
+    """Why a file that is not the recorded one differs, where its lines ending in CR LF
+    (Windows) instead of LF, or the reverse, is the whole difference: a text conversion
+    on the way (git's core.autocrlf, ``unzip -a``, an editor). Empty otherwise."""
+    try:
+        data = path.read_bytes()
+    except OSError:
+        return ""
+    unix = data.replace(b"\r\n", b"\n")
+    for converted, change in ((unix, "Windows line endings (CR LF) where the recorded file "
+                               "has LF"),
+                              (unix.replace(b"\n", b"\r\n"), "LF line endings where the "
+                               "recorded file has Windows line endings (CR LF)")):
+        if converted != data and hashlib.sha256(converted).hexdigest() == sha:
+            return (f"its content is the recorded file's but with {change}: a text conversion "
+                    "on the way (git core.autocrlf, unzip -a, an editor) changed its bytes; "
+                    "give the file as it was received byte for byte (e.g. unzip without -a, "
+                    "a git checkout with core.autocrlf false)")
+    return ""
 
 
 def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch: Path,
