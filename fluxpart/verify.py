@@ -27,8 +27,9 @@ Verdicts and exit statuses of ``fluxpart verify``:
 - ``reproduced within floating-point rounding`` (0, or 1 with ``--exact``):
   floating-point values differ, but each by at most :data:`ROUNDING_TOLERANCE`
   relative to the larger of the two (values near zero: relative to
-  :data:`NEAR_ZERO_SHARE` of the column's largest magnitude), and nothing else
-  differs; the largest relative difference and the platform facts that differ
+  :data:`NEAR_ZERO_SHARE` of the column's largest magnitude; a column that is the
+  difference of others: relative to them; the numbers of the manifest's
+  ``provenance`` alike), and nothing else differs; the largest relative difference and the platform facts that differ
   are given;
 - ``NOT reproduced`` (1): anything else — a larger or non-float difference, a
   changed file, an edited manifest, an extra or missing file, another input;
