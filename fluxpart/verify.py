@@ -802,8 +802,9 @@ def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: l
             return path, path, None
         copy = _recorded_copy(recorded, scratch)
         if _same_but_input_path(path, copy):
-            notes.append(f"site config: {str(path)!r} differs from the recorded one only in "
-                         "[input] path; the recorded text was used, the given file only to "
+            notes.append(f"site config: {str(path)!r} is not the recorded file but holds its "
+                         "settings (it differs at most in [input] path, comments, layout or "
+                         "line endings); the recorded text was used, the given file only to "
                          "find the input")
             return copy, path, None
         return None, None, Difference("input", "input", column="site config", row=str(path),
@@ -814,9 +815,9 @@ def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: l
     copy = _recorded_copy(recorded, scratch)
     if path is not None and path.is_file() and _same_but_input_path(path, copy):
         # edited where it lies to point at a moved or renamed input, as --config allows
-        notes.append(f"site config: {str(path)!r} differs from the recorded one only in "
-                     "[input] path; the recorded text was used, the file only to find the "
-                     "input")
+        notes.append(f"site config: {str(path)!r} is not the recorded file but holds its "
+                     "settings (it differs at most in [input] path, comments, layout or line "
+                     "endings); the recorded text was used, the file only to find the input")
         return copy, path, None
     if copy is not None:
         where = (f"the file at {str(path)!r} is another version{_config_changes(path, copy)}"
