@@ -116,6 +116,15 @@ _ZERO_CURTAIN = 0.5
 # rows pasted twice does.
 _REPEATED_DAYS = 1.0
 _REPEATED_VARIABLES = ("nee", "rg", "tair", "vpd", "ustar", "tsoil", "rh")
+# NEE alone pasted over other days (a month of the flux column copied while the drivers
+# were not, or a day whose measured records are fewer than a day of records): half a
+# day of records' worth of measured NEE in a row, with at least half as many distinct
+# values, each equal to the NEE a whole number of days (up to a year and a day) earlier.
+# Two measured fluxes agree in all their written digits rarely (a resolution step of
+# 0.001 µmol m-2 s-1 over a spread of several µmol m-2 s-1), so 24 in a row do only in
+# a copy; distinct values keep out a stuck or zero-filled run (named above). Our choice.
+_REPEATED_NEE_SHARE_OF_DAY = 0.5
+_REPEATED_NEE_MAX_LAG_DAYS = 366
 # Night-mask check (our choice): with the sun below the horizon a pyranometer reads
 # about 0 (a few W m-2 of thermal offset, negative or positive); Rg at or above the
 # night threshold in more than half of at least a day of such records is an offset.
@@ -291,6 +300,55 @@ def _repeated_records(frame: pd.DataFrame, interval_minutes: float) -> list:
         f"{index[start - int(lags[start])]:%Y-%m-%d %H:%M}){more}: a logger memory read out "
         "twice or rows pasted twice reads like this, and the copies would enter as "
         "measured; mark them missing in a copy of the file"), False)]
+
+
+def _repeated_nee(frame: pd.DataFrame, interval_minutes: float) -> list:
+    """Runs of measured NEE equal, value for value, to the NEE whole days earlier
+    (the flux column pasted over other days; :func:`_repeated_records` names records
+    that repeat in every variable)."""
+    if "nee" not in frame.columns:
+        return []
+    index = pd.DatetimeIndex(frame.index)
+    per_day = int(round(1440.0 / interval_minutes))
+    nee = pd.to_numeric(frame["nee"], errors="coerce").to_numpy(dtype=float)
+    needed = max(2, int(np.ceil(_REPEATED_NEE_SHARE_OF_DAY * per_day)))
+    best = None
+    for days in range(1, min(_REPEATED_NEE_MAX_LAG_DAYS, (len(nee) - 1) // per_day) + 1):
+        lag = days * per_day
+        later, earlier = nee[lag:], nee[:-lag]
+        both = np.isfinite(later) & np.isfinite(earlier)
+        equal = both & (later == earlier)
+        if np.count_nonzero(equal) < needed:
+            continue
+        # runs of equal pairs among the pairs where both are measured (gaps skipped)
+        positions = np.flatnonzero(both)
+        edges = np.diff(np.concatenate([[0], equal[positions].astype(np.int8), [0]]))
+        starts, ends = np.flatnonzero(edges == 1), np.flatnonzero(edges == -1)
+        for start, end in zip(starts, ends, strict=True):
+            if end - start < needed:
+                continue
+            records = positions[start:end] + lag
+            if np.unique(nee[records]).size < needed / 2:
+                continue                                # a stuck or zero-filled run
+            if best is None or records.size > best[1].size:
+                best = (days, records)
+    if best is None:
+        return []
+    days, records = best
+    first, last = int(records[0]), int(records[-1])
+    lag = days * per_day
+    drivers = [n for n in _REPEATED_VARIABLES if n != "nee" and n in frame.columns]
+    copied = [n for n in drivers if np.array_equal(
+        *(pd.to_numeric(frame[n], errors="coerce").to_numpy(dtype=float)[r]
+          for r in (records, records - lag)), equal_nan=True)]
+    others = (f", and so do {', '.join(copied)} (rows pasted twice)" if copied
+              else ", while the drivers do not (the flux column pasted over other days)")
+    return [Finding("input (repeated NEE)", (
+        f"{records.size} measured NEE values {index[first]:%Y-%m-%d %H:%M} .. "
+        f"{index[last]:%Y-%m-%d %H:%M} (interval starts) repeat exactly, value for value, "
+        f"the NEE {days} day(s) earlier (from {index[first - lag]:%Y-%m-%d %H:%M}){others}: "
+        "measured fluxes never repeat so, and the copies would enter as measured; mark them "
+        "missing in a copy of the file"), False)]
 
 
 def _long_gaps(index: pd.DatetimeIndex, nee: np.ndarray, interval_minutes: float) -> list:
@@ -480,7 +538,8 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         return [Finding("whole record", "no records", True)]
     if not findings:                     # a wholly constant column is named above
         findings += _stuck(frame, potential, interval_minutes)
-        findings += _repeated_records(frame, interval_minutes)
+        repeated = _repeated_records(frame, interval_minutes)
+        findings += repeated or _repeated_nee(frame, interval_minutes)
     days = ((index - index[0].normalize()) / pd.Timedelta(days=1)).to_numpy()
     nee = screened["nee"].to_numpy(dtype=float)
     temperature = (screened[temperature_name].to_numpy(dtype=float)

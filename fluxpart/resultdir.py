@@ -72,7 +72,8 @@ from .store import (
 )
 
 __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_leftovers",
-           "folder_lock", "lock_file", "make_staging", "read_folder", "recover_missing",
+           "folder_lock", "interrupted_writes", "lock_file", "make_staging", "read_folder",
+           "recover_missing",
            "replace_refusal", "swapped_in", "write_folder"]
 
 #: Seconds a writer waits for another writer of the same folder before giving up.
@@ -224,6 +225,15 @@ def _suppress_os_error():
         yield
     except OSError:
         pass
+
+
+def interrupted_writes(directory) -> list[str]:
+    """Names of the staging and retired folders of `directory` beside it: what a writer
+    running now, or one stopped before it finished (``kill -9``, a power cut), left.
+    The folder itself is then the earlier complete result (or, after the swap, the new
+    one); :func:`clean_leftovers` of the next writer removes them."""
+    directory = _absolute(directory)
+    return [p.name for p in _leftovers(directory, _STAGING) + _leftovers(directory, _RETIRED)]
 
 
 def clean_leftovers(directory) -> list[str]:

@@ -27,8 +27,9 @@ Verdicts and exit statuses of ``fluxpart verify``:
 - ``reproduced within floating-point rounding`` (0, or 1 with ``--exact``):
   floating-point values differ, but each by at most :data:`ROUNDING_TOLERANCE`
   relative to the larger of the two (values near zero: relative to
-  :data:`NEAR_ZERO_SHARE` of the column's largest magnitude), and nothing else
-  differs; the largest relative difference and the platform facts that differ
+  :data:`NEAR_ZERO_SHARE` of the column's largest magnitude; a column that is the
+  difference of others: relative to them; the numbers of the manifest's
+  ``provenance`` alike), and nothing else differs; the largest relative difference and the platform facts that differ
   are given;
 - ``NOT reproduced`` (1): anything else — a larger or non-float difference, a
   changed file, an edited manifest, an extra or missing file, another input;
@@ -58,6 +59,7 @@ verification.
 
 from __future__ import annotations
 
+import hashlib
 import json
 import os
 import re
@@ -73,6 +75,7 @@ from .config import Config
 from .errors import FluxpartError, InputFileError
 from .fingerprint import code_fingerprint, platform_differences, platform_record
 from .manifest import CAUTION, library_versions, read_manifest, recorded_path, without_paths
+from .resultdir import interrupted_writes
 from .store import file_sha256, read_table
 
 __all__ = ["NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference", "VerifyReport",
@@ -138,9 +141,13 @@ class Difference:
     recomputed: str = ""
     count: int = 1
     relative: float = float("nan")
+    cause: str = ""
 
     def describe(self) -> str:
         """Return one line naming the location and both values."""
+        if self.kind == "rounding" and self.table == "manifest":
+            return (f"manifest field {self.column!r} within rounding: stored {self.stored}, "
+                    f"recomputed {self.recomputed} (relative difference {self.relative:.3g})")
         if self.kind in ("value", "rounding"):
             more = f" ({self.count} rows differ" if self.count > 1 else " (1 row differs"
             relative = (f"; largest relative difference {self.relative:.3g})"
@@ -151,6 +158,10 @@ class Difference:
         if self.kind == "more":
             return f"{self.table}: {self.count} more column(s) differ: {self.stored}"
         if self.kind == "input":
+            if self.cause:
+                return (f"{self.column} {self.row} has SHA-256 {self.recomputed}, but the "
+                        f"manifest records {self.stored}: {self.cause}, so nothing was "
+                        "recomputed")
             return (f"{self.column} {self.row} has SHA-256 {self.recomputed}, but the manifest "
                     f"records {self.stored}: it is not the {self.column} the result was "
                     "computed from, so nothing was recomputed")
@@ -343,8 +354,51 @@ def _unequal(left: pd.Series, right: pd.Series) -> np.ndarray:
     return ~(same | both_missing)
 
 
-def _float_column(left: pd.Series, right: pd.Series):
-    """(differs bitwise, beyond rounding, relative difference) of two float64 columns."""
+#: Columns that are differences of other columns of the same row, with the columns they
+#: are computed from (agreement.method_agreement, pipeline's u* scenario spread): the
+#: rounding of a difference is the rounding of its operands, so it is compared relative
+#: to their magnitude, not its own (cancellation, Higham 2002 §1.7 (m)). Without this a
+#: method difference of 0.001 g C m-2 from two daily sums of 1 g C m-2 read a relative
+#: rounding of 1e-8 in each sum as 2.6e-5 in the difference: NOT reproduced on a CPU
+#: with AVX-512 switched off (review round twelve).
+_DIFFERENCE_OPERANDS = (
+    (re.compile(r"(gpp|reco)_method_difference"), ("{0}_daytime", "{0}_nighttime"), False),
+    (re.compile(r"(gpp|reco)_relative_difference"), ("{0}_daytime", "{0}_nighttime"), True),
+    (re.compile(r"(.+)_ustar_spread"), ("{0}_ustar_p16", "{0}_ustar_p50", "{0}_ustar_p84"),
+     False),
+)
+
+
+def _operand_scale(column, stored: pd.DataFrame, recomputed: pd.DataFrame):
+    """Per-row magnitude of the operands a difference column is computed from (the larger
+    of the stored and recomputed values; for a relative difference divided by the mean of
+    the two it is relative to); None for a column that is no difference of others."""
+    found = [(pattern.fullmatch(str(column)), templates, relative)
+             for pattern, templates, relative in _DIFFERENCE_OPERANDS]
+    found = [(match, templates, relative) for match, templates, relative in found if match]
+    if not found:
+        return None
+    match, templates, relative = found[0]
+    operands = [t.format(match[1]) for t in templates]
+    if not all(c in stored.columns and c in recomputed.columns for c in operands):
+        return None
+    values = [frame[c].to_numpy(dtype=np.float64) for frame in (stored, recomputed)
+              for c in operands]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        scale = np.fmax.reduce(np.abs(np.vstack(values)), axis=0)
+        if relative:
+            # (day - night) / |mean(day, night)|, the mean of the stored values
+            mean = np.abs(0.5 * (values[0] + values[1]))
+            scale = np.where(mean > 0, scale / mean, np.nan)
+    return np.where(np.isfinite(scale), scale, 0.0)
+
+
+def _float_column(left: pd.Series, right: pd.Series, operand_scale=None):
+    """(differs bitwise, beyond rounding, relative difference) of two float64 columns.
+
+    `operand_scale` (per row, optional): the magnitude of the operands of a difference
+    column, the reference of its relative difference where larger than the values.
+    """
     a = left.to_numpy(dtype=np.float64, copy=True)
     b = right.to_numpy(dtype=np.float64, copy=True)
     nan_a, nan_b = np.isnan(a), np.isnan(b)
@@ -358,6 +412,8 @@ def _float_column(left: pd.Series, right: pd.Series):
             scale = np.nanmax(np.abs(np.concatenate([a[np.isfinite(a)], b[np.isfinite(b)]]))
                               ) if (np.isfinite(a) | np.isfinite(b)).any() else 0.0
             reference = np.maximum(np.maximum(np.abs(a), np.abs(b)), NEAR_ZERO_SHARE * scale)
+            if operand_scale is not None:
+                reference = np.maximum(reference, operand_scale)
             gap = np.abs(a - b)
             relative = np.where(both & finite & (reference > 0), gap / np.where(
                 reference > 0, reference, 1.0), np.where(both, np.inf, 0.0))
@@ -402,7 +458,8 @@ def compare_tables(name: str, stored: pd.DataFrame, recomputed: pd.DataFrame) ->
     for column in [c for c in stored.columns if c in recomputed.columns]:
         left, right = stored[column], recomputed[column]
         if _is_float(left) and _is_float(right):
-            differs, beyond, relative = _float_column(left, right)
+            differs, beyond, relative = _float_column(
+                left, right, _operand_scale(column, stored, recomputed))
             kind = "value" if beyond.any() else "rounding"
             shown = beyond if beyond.any() else differs
             position = (int(np.flatnonzero(beyond)[0]) if beyond.any()
@@ -461,6 +518,20 @@ def _text(value) -> str:
     return text if len(text) <= 200 else text[:197] + "..."
 
 
+def _float_relative(a, b) -> float:
+    """Relative difference of two manifest numbers of which one at least is a float (the
+    model-choice criteria and weights of ``provenance``); NaN for anything else. A sum of
+    residuals summed in another order (another CPU's SIMD width) differs in its last
+    digits, as a table's float cells do, and is compared as they are."""
+    numbers = all(isinstance(x, (int, float)) and not isinstance(x, bool) for x in (a, b))
+    if not numbers or not (isinstance(a, float) or isinstance(b, float)):
+        return float("nan")
+    if not (np.isfinite(a) and np.isfinite(b)):
+        return float("nan")
+    reference = max(abs(a), abs(b))
+    return abs(a - b) / reference if reference > 0 else float("nan")
+
+
 def _compare_manifests(stored: dict, recomputed: dict) -> list:
     pairs = []
     for key in _PATH_FREE:
@@ -479,8 +550,17 @@ def _compare_manifests(stored: dict, recomputed: dict) -> list:
         pairs.append((key, stored[key], "(absent)"))
     if stored.get("unhashed") != recomputed.get("unhashed"):
         pairs.append(("unhashed", stored.get("unhashed"), recomputed.get("unhashed")))
-    out = [Difference("manifest", "manifest", column=name, stored=_text(a), recomputed=_text(b))
-           for name, a, b in pairs[:_MAX_FIELDS_LISTED]]
+    # only what the run computed (provenance) rounds; a setting, the site or the seed is
+    # read, not computed, and any change of it is a difference
+    rounding = [(name, a, b, _float_relative(a, b) if name.startswith("provenance.")
+                 else float("nan")) for name, a, b in pairs]
+    out = [Difference("manifest", "rounding", column=name, stored=_text(a), recomputed=_text(b),
+                      relative=relative)
+           for name, a, b, relative in rounding if relative <= ROUNDING_TOLERANCE]
+    pairs = [(name, a, b) for name, a, b, relative in rounding
+             if not relative <= ROUNDING_TOLERANCE]
+    out += [Difference("manifest", "manifest", column=name, stored=_text(a), recomputed=_text(b))
+            for name, a, b in pairs[:_MAX_FIELDS_LISTED]]
     if len(pairs) > _MAX_FIELDS_LISTED:
         rest = [name for name, _, _ in pairs[_MAX_FIELDS_LISTED:]]
         out.append(Difference("manifest", "more", stored=", ".join(rest), count=len(rest)))
@@ -722,8 +802,9 @@ def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: l
             return path, path, None
         copy = _recorded_copy(recorded, scratch)
         if _same_but_input_path(path, copy):
-            notes.append(f"site config: {str(path)!r} differs from the recorded one only in "
-                         "[input] path; the recorded text was used, the given file only to "
+            notes.append(f"site config: {str(path)!r} is not the recorded file but holds its "
+                         "settings (it differs at most in [input] path, comments, layout or "
+                         "line endings); the recorded text was used, the given file only to "
                          "find the input")
             return copy, path, None
         return None, None, Difference("input", "input", column="site config", row=str(path),
@@ -734,9 +815,9 @@ def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: l
     copy = _recorded_copy(recorded, scratch)
     if path is not None and path.is_file() and _same_but_input_path(path, copy):
         # edited where it lies to point at a moved or renamed input, as --config allows
-        notes.append(f"site config: {str(path)!r} differs from the recorded one only in "
-                     "[input] path; the recorded text was used, the file only to find the "
-                     "input")
+        notes.append(f"site config: {str(path)!r} is not the recorded file but holds its "
+                     "settings (it differs at most in [input] path, comments, layout or line "
+                     "endings); the recorded text was used, the file only to find the input")
         return copy, path, None
     if copy is not None:
         where = (f"the file at {str(path)!r} is another version{_config_changes(path, copy)}"
@@ -825,9 +906,31 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
         actual = file_sha256(path)
         if actual != sha:
             return None, Difference("input", "input", column="input file", row=str(path),
-                                    stored=str(sha), recomputed=actual)
+                                    stored=str(sha), recomputed=actual,
+                                    cause=_line_ending_cause(path, sha))
         found.append(path)
     return (found if parts else found[0]), None
+
+
+def _line_ending_cause(path: Path, sha) -> str:
+    """Why a file that is not the recorded one differs, where its lines ending in CR LF
+    (Windows) instead of LF, or the reverse, is the whole difference: a text conversion
+    on the way (git's core.autocrlf, ``unzip -a``, an editor). Empty otherwise."""
+    try:
+        data = path.read_bytes()
+    except OSError:
+        return ""
+    unix = data.replace(b"\r\n", b"\n")
+    for converted, change in ((unix, "Windows line endings (CR LF) where the recorded file "
+                               "has LF"),
+                              (unix.replace(b"\n", b"\r\n"), "LF line endings where the "
+                               "recorded file has Windows line endings (CR LF)")):
+        if converted != data and hashlib.sha256(converted).hexdigest() == sha:
+            return (f"its content is the recorded file's but with {change}: a text conversion "
+                    "on the way (git core.autocrlf, unzip -a, an editor) changed its bytes; "
+                    "give the file as it was received byte for byte (e.g. unzip without -a, "
+                    "a git checkout with core.autocrlf false)")
+    return ""
 
 
 def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch: Path,
@@ -1008,6 +1111,14 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                              "config (fluxpart run) nor a demo seed (fluxpart demo), so the "
                              "result cannot be recomputed")
     notes, rounding = [], []
+    stopped = interrupted_writes(directory)
+    if stopped:
+        # a killed `fluxpart run` into this folder leaves the earlier result whole; without
+        # this note its verdict read as if the folder held that run's result
+        notes.append(f"{', '.join(stopped)} beside the folder: a fluxpart run into it is "
+                     "running now or was stopped before it finished; the folder holds the "
+                     "complete result named on the result: line, not that run's (the next "
+                     "run removes what a stopped one left)")
     if (directory / "report").exists():
         notes.append("report/: the page and its figures are drawn from the tables and are not "
                      "covered by the manifest's hashes, so they are not verified; redraw them "
@@ -1043,6 +1154,8 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                 # a renamed copy of the input: its content is checked by SHA-256
                 notes.append(f"{found.column}: the file names differ (stored {found.stored}, "
                              f"now {found.recomputed}); their content is the recorded one")
+            elif found.kind == "rounding":
+                rounding.append(found)
             else:
                 differences.append(found)
         names = sorted(set(manifest["tables"]) | set(new_manifest["tables"]))

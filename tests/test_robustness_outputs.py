@@ -133,7 +133,7 @@ def test_verify_follows_a_config_edited_in_place_to_a_renamed_input(copy, capsys
         'path = "tower.csv"', 'path = "tower-2021.csv"'), encoding="utf-8")
     assert main(["verify", str(copy / "out")]) == 0
     out = capsys.readouterr().out
-    assert out.startswith("bit-identical") and "only in [input] path" in out
+    assert out.startswith("bit-identical") and "at most in [input] path" in out
 
 
 def test_verify_names_a_missing_table_in_one_sentence(copy, capsys):

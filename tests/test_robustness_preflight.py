@@ -14,7 +14,7 @@ from fluxpart import demo
 from fluxpart.cli import main
 from fluxpart.errors import InsufficientDataError
 from fluxpart.io import _potential
-from fluxpart.preflight import _repeated_records, _stuck
+from fluxpart.preflight import _repeated_nee, _repeated_records, _stuck
 
 
 @pytest.fixture(scope="module")
@@ -175,3 +175,38 @@ def test_a_week_of_records_read_out_twice_is_named_with_both_periods(year):
     shifted = frame.copy()
     shifted.loc[target] = frame.shift(47).loc[target].to_numpy()      # 23.5 h earlier
     assert _repeated_records(shifted, 30) == []
+
+
+def test_nee_pasted_over_other_days_is_named_even_without_its_drivers(year):
+    """A month of the NEE column pasted over the next month while the drivers were not
+    (review round twelve: annual NEE -241.4 -> -280.4 g C m-2 on the example site without
+    a word), and one day of every column pasted over the next, whose measured NEE (32 of
+    48 records) was too few for the all-variable check, passed silently. Fact of the
+    trade as above: measured fluxes do not repeat, digit for digit, the values a whole
+    number of days earlier. The correct demo year, at the example file's 0.001 and at a
+    coarse 0.1 µmol m-2 s-1 resolution, and NEE stuck at one value are not named here."""
+    frame, _, _ = year
+    for decimals in (None, 3, 1):
+        clean = frame.copy()
+        if decimals is not None:
+            clean["nee"] = clean["nee"].round(decimals)
+        assert _repeated_nee(clean, 30) == []
+    pasted = frame.copy()
+    june = (pasted.index >= "2021-06-01") & (pasted.index < "2021-07-01")
+    july = (pasted.index >= "2021-07-01") & (pasted.index < "2021-07-31")
+    pasted.loc[july, "nee"] = frame.loc[june, "nee"].to_numpy()
+    assert _repeated_records(pasted, 30) == []                     # drivers differ
+    (finding,) = _repeated_nee(pasted, 30)
+    assert not finding.fatal and finding.stage == "input (repeated NEE)"
+    assert "the NEE 30 day(s) earlier (from 2021-06-01" in finding.message
+    assert "while the drivers do not" in finding.message
+    day = frame.copy()
+    source = (day.index >= "2021-06-10") & (day.index < "2021-06-11")
+    target = (day.index >= "2021-06-11") & (day.index < "2021-06-12")
+    day.loc[target] = frame.loc[source].to_numpy()
+    assert int(frame.loc[source, "nee"].notna().sum()) < 48
+    (finding,) = _repeated_nee(day, 30)
+    assert "1 day(s) earlier (from 2021-06-10" in finding.message and "so do rg" in finding.message
+    stuck = frame.copy()
+    stuck.loc[july, "nee"] = 1.5
+    assert _repeated_nee(stuck, 30) == []
