@@ -115,9 +115,11 @@ def _command_demo(args) -> int:
     site = demo.site()
     _check_output_folder(Path(args.out), site.name)
     frame, truth = demo.site_year(seed=args.seed)
+    frame = demo.as_recorded(frame)
     bar, advance = _progress_bar(Config(), args.quiet)
     with bar:
-        result = process(frame, site, provenance={"demo": {"seed": args.seed, "variant": "c3"}},
+        result = process(frame, site, provenance={"demo": {"seed": args.seed, "variant": "c3",
+                                                     "as_recorded": True}},
                          progress=advance)
     out = Path(args.out)
     result.write(out)

@@ -26,7 +26,7 @@ from .responses import lloyd_taylor
 from .site import Site
 from .solar import potential_radiation
 from .store import file_mode
-from .variables import vpd_from_rh
+from .variables import to_canonical, vpd_from_rh
 
 __all__ = ["SITE", "compare_with_truth", "site", "site_year", "write_example"]
 
@@ -414,6 +414,28 @@ def _format_column(values, decimals):
     text = np.char.mod(f"%.{decimals}f", np.nan_to_num(values, nan=0.0))
     text = np.where(text == f"-{0:.{decimals}f}", f"{0:.{decimals}f}", text)   # no "-0.0"
     return np.where(np.isnan(values), str(_FILE_MISSING), text)
+
+
+def as_recorded(frame: pd.DataFrame) -> pd.DataFrame:
+    """`frame` (of :func:`site_year`) with each value as the example file records it.
+
+    Each column is written with the example file's decimals (NEE to 0.001 µmol m-2 s-1,
+    VPD to 0.0001 kPa, ...; see :func:`write_example`) and read back, so ``fluxpart
+    demo`` processes the numbers the example file holds and gets its results. It also
+    makes the demo's input the same on every CPU: the simulation's ``exp`` and ``sin``
+    take SIMD paths that differ between CPUs in the last bits (~1e-12 µmol m-2 s-1),
+    which rounding to the recorded decimals removes.
+    """
+    out = frame.copy()
+    for name, (_, unit, decimals) in _FILE_COLUMNS.items():
+        if name not in out.columns or name == "nee_flag":
+            continue
+        values = out[name].to_numpy(dtype=float)
+        written = values / 10.0 if unit == "kPa" else values
+        text = _format_column(written, decimals)
+        read = np.where(text == str(_FILE_MISSING), np.nan, text.astype(float))
+        out[name] = to_canonical(read, name, unit) if unit else read
+    return out
 
 
 def _write_atomic(path: Path, text: str) -> None:

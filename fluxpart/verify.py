@@ -946,6 +946,8 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
         recorded = provenance["demo"]
         variant = recorded.get("variant", "c3")
         frame, _ = demo.site_year(seed=recorded.get("seed", 0), variant=variant)
+        if recorded.get("as_recorded"):
+            frame = demo.as_recorded(frame)
         result = process(frame, demo.site(variant), config,
                          provenance={"demo": recorded})
         return "demo", result, []
