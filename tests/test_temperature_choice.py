@@ -289,38 +289,3 @@ def test_a_few_spikes_do_not_decide_the_respiration_temperature():
     with_spikes = choose_respiration_temperature(index, spiked, tair, tsoil, is_night)
     assert clean.driver == with_spikes.driver == "tsoil"
     assert with_spikes.delta_bic < -MIN_EVIDENCE_BIC
-
-
-def test_air_temperature_chosen_over_a_deep_soil_probe_is_also_tried_with_delays():
-    """Known truth: respiration planted on air temperature 3 h earlier (the lag of the
-    daily wave about one damping depth down, ~3.8 h per damping depth: textbook soil
-    physics, Campbell & Norman 1998 (m)); the file's soil column is a deep probe whose daily
-    wave is damped to a tenth and peaks 12 h after the air's. Air temperature wins over the
-    probe, and the delay is then found as where the file has no soil column."""
-    rng, index, tair, _, is_night = _weather(seed=3, days=90)
-    hour = index.hour.to_numpy() + index.minute.to_numpy() / 60.0
-    # the air's two-day running mean half a day later, plus a small wave peaking at 21 h
-    deep = (pd.Series(tair).rolling(96, min_periods=1).mean().shift(24).bfill().to_numpy()
-            + 0.5 * np.sin(2 * np.pi * (hour - 15.0) / 24.0))
-    lagged = delayed(tair, 6)
-    nee = _night_nee(rng, index, lagged, is_night)
-    choice = choose_respiration_temperature(index, nee, tair, deep, is_night)
-    assert choice.driver == "tair" and choice.delta_bic > STRONG_EVIDENCE_BIC
-    assert choice.delay_records == 6 and "delayed by 3 h" in choice.reason
-    assert choice.delay_delta_bic < -STRONG_EVIDENCE_BIC
-    assert set(choice.sad) == {"tair", "tsoil"}        # the soil comparison's records only
-    assert {"tair", "tair_undelayed", "tsoil"} <= set(choice.fits)
-    # without the soil column the same delay is chosen
-    alone = choose_respiration_temperature(index, nee, tair, None, is_night)
-    assert alone.delay_records == choice.delay_records
-
-
-def test_air_temperature_planted_without_delay_beside_soil_temperature_is_kept_undelayed():
-    """Known truth: respiration on air temperature itself (no lag) beside a soil column:
-    air is chosen and no delay replaces it (strong evidence needed, Kass & Raftery 1995)."""
-    rng, index, tair, tsoil, is_night = _weather(seed=5, days=90)
-    nee = _night_nee(rng, index, tair, is_night)
-    choice = choose_respiration_temperature(index, nee, tair, tsoil, is_night)
-    assert choice.driver == "tair" and choice.delay_records == 0
-    assert "kept undelayed" in choice.reason
-    assert choice.delay_delta_bic > -STRONG_EVIDENCE_BIC

@@ -29,9 +29,8 @@ its sum of absolute residuals is lower by strong evidence (ΔBIC beyond
 :data:`STRONG_EVIDENCE_BIC`), in which case the nearness to the bound is read as
 an imprecise E0 and the comparison decides.
 
-**Air temperature with a delay** (since 0.11.0 where the input has no soil
-temperature; since 0.18.0 also where air temperature won over, or was kept beside, the
-input's soil temperature): respiration follows the temperature of the soil and litter, whose
+**Air temperature with a delay** (since 0.11.0), only where the input has no soil
+temperature: respiration follows the temperature of the soil and litter, whose
 daily wave lags the air's by hours (the phase lag of a daily temperature wave
 grows by one radian, ~3.8 h, per damping depth, ~0.1 m in moist soil; textbook
 soil physics, e.g. Campbell & Norman 1998 (m)), so the night flux plotted
@@ -43,14 +42,7 @@ is fitted with air temperature delayed by each of :data:`AIR_DELAYS_HOURS`; the
 delay with the smallest sum of absolute night residuals replaces the undelayed air
 temperature when its BIC, with one parameter more (2n ln(SAD_delay / SAD_0) +
 ln n), is lower by more than :data:`STRONG_EVIDENCE_BIC`: the delay is picked from
-several, so positive evidence alone is not enough. A soil probe deeper than the layer that
-respires (30 cm against the top 5–10 cm) lags and damps the wave too much and loses to air
-temperature, while the respiring layer still lags the air by hours: the same delays are
-therefore tried wherever air temperature is the driver, not only where the file has no soil
-column (an invented 30 cm probe with respiration on 5 cm temperature, seventh independent
-trial: air chosen over the probe by ΔBIC +958, and the nighttime partition 6–10 % high;
-with the probe's column left out, air delayed by 2 h was chosen and the error fell to
-3–6 %).
+several, so positive evidence alone is not enough.
 """
 
 from __future__ import annotations
@@ -86,7 +78,7 @@ chosen by the bound rule alone, overestimated annual Reco by 14.5 %)."""
 
 
 AIR_DELAYS_HOURS = (1, 2, 3, 4, 5, 6)
-"""Delays of air temperature [h] tried wherever air temperature is the driver: up to
+"""Delays of air temperature [h] tried where the input has no soil temperature: up to
 the phase lag of the daily wave at about 1.5 damping depths (~15 cm), the depths whose
 temperature soil respiration follows (our reading of textbook soil physics (m))."""
 
@@ -135,7 +127,7 @@ class TemperatureChoice:
         delayed air temperature and ``"tair_undelayed"`` the one on air temperature.
     delay_records : int
         Records by which the chosen temperature is delayed (0: none; only air
-        temperature).
+        temperature, only without soil temperature).
     delay_hours : float
         The same delay [h].
     delay_delta_bic : float
@@ -232,9 +224,8 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     try:
         fits["tsoil"] = _night_fit(index, nee, tsoil, night, "tsoil", nighttime_settings)
     except InsufficientDataError as error:
-        return _air_delay(index, nee, tair, night, nighttime_settings, _SoilOutcome(
-            f"the soil-temperature fit failed ({error})", {"tair": np.nan, "tsoil": np.nan},
-            0, np.nan, np.nan, fits))
+        return TemperatureChoice("tair", f"the soil-temperature fit failed ({error})",
+                                 {"tair": np.nan, "tsoil": np.nan}, 0, np.nan, np.nan, fits)
     reco = {name: fit.reco for name, fit in fits.items()}
     bounds = nighttime_settings.get("e0_bounds", _DEFAULT_E0_BOUNDS)
     pressed = {name: _e0_at_bound(fit.e0_annual, bounds) for name, fit in fits.items()}
@@ -243,9 +234,8 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     sad = {name: float(np.sum(np.abs(nee[shared] - values[shared])))
            for name, values in reco.items()}
     if count < MIN_SHARED_RECORDS or min(sad.values()) <= 0:
-        return _air_delay(index, nee, tair, night, nighttime_settings, _SoilOutcome(
-            f"only {count} night records have both temperatures", sad, count, np.nan, np.nan,
-            fits))
+        return TemperatureChoice("tair", f"only {count} night records have both temperatures",
+                                 sad, count, np.nan, np.nan, fits)
     delta_bic = laplace_delta_bic(sad["tsoil"], sad["tair"], count)
     weight = bic_weight(delta_bic)     # = driver_weight of the same records, not recomputed
     strongly_favoured = ("tsoil" if delta_bic < -STRONG_EVIDENCE_BIC
@@ -257,56 +247,31 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
                   f"within one standard error of the accepted range {list(bounds)} K: "
                   f"{words[driver]} temperature used (ΔBIC soil - air = {delta_bic:.1f} over "
                   f"{count} records)")
-    else:
-        driver = "tsoil" if delta_bic < -MIN_EVIDENCE_BIC else "tair"
-        if driver == "tair" and delta_bic < 0:
-            reason = (f"soil and air temperature explain the measured night NEE equally well "
-                      f"(ΔBIC soil - air = {delta_bic:.1f} over {count} records, within "
-                      f"{MIN_EVIDENCE_BIC:g}): air temperature kept")
-        else:
-            name = {"tair": "air", "tsoil": "soil"}[driver]
-            reason = (f"{name} temperature explains the measured night NEE better "
-                      f"(ΔBIC soil - air = {delta_bic:.1f} over {count} records)")
-            if pressed[driver]:
-                reason += (f", strongly (beyond {STRONG_EVIDENCE_BIC:g}), although its E0 of "
-                           f"{pressed[driver]} K is within one standard error of the accepted "
-                           f"range {list(bounds)} K")
-    if driver == "tsoil":
         return TemperatureChoice(driver, reason, sad, count, delta_bic, weight, fits)
-    return _air_delay(index, nee, tair, night, nighttime_settings,
-                      _SoilOutcome(reason, sad, count, delta_bic, weight, fits))
-
-
-@dataclass(frozen=True)
-class _SoilOutcome:
-    """Why air temperature won over (or was kept without) the soil temperature of the input:
-    the arguments of :class:`TemperatureChoice` before a delay of air is tried."""
-
-    reason: str
-    sad: dict
-    records: int
-    delta_bic: float
-    tsoil_weight: float
-    fits: dict
-
-
-def _air_delay(index, nee, tair, night, settings, soil=None) -> TemperatureChoice:
-    """Air temperature, delayed where the night data favour it (module docstring).
-
-    `soil` (a :class:`_SoilOutcome`) where the input has a soil temperature that air
-    temperature won over; None where it has none.
-    """
-    tair = np.asarray(tair, dtype=float)
-    if soil is None:
-        soil = _SoilOutcome("the input has no soil temperature", {"tair": np.nan,
-                            "tsoil": np.nan}, 0, np.nan, np.nan, {})
-        try:
-            fits = {"tair_undelayed": _night_fit(index, nee, tair, night, "tair", settings)}
-        except InsufficientDataError:
-            # the run's own nighttime fit reports why; nothing to compare here
-            return _plain_air(soil)
+    driver = "tsoil" if delta_bic < -MIN_EVIDENCE_BIC else "tair"
+    if driver == "tair" and delta_bic < 0:
+        reason = (f"soil and air temperature explain the measured night NEE equally well "
+                  f"(ΔBIC soil - air = {delta_bic:.1f} over {count} records, within "
+                  f"{MIN_EVIDENCE_BIC:g}): air temperature kept")
     else:
-        fits = {"tair_undelayed": soil.fits["tair"]}
+        name = {"tair": "air", "tsoil": "soil"}[driver]
+        reason = (f"{name} temperature explains the measured night NEE better "
+                  f"(ΔBIC soil - air = {delta_bic:.1f} over {count} records)")
+        if pressed[driver]:
+            reason += (f", strongly (beyond {STRONG_EVIDENCE_BIC:g}), although its E0 of "
+                       f"{pressed[driver]} K is within one standard error of the accepted "
+                       f"range {list(bounds)} K")
+    return TemperatureChoice(driver, reason, sad, count, delta_bic, weight, fits)
+
+
+def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
+    """Air temperature, delayed where the night data favour it (module docstring)."""
+    tair = np.asarray(tair, dtype=float)
+    try:
+        fits = {"tair_undelayed": _night_fit(index, nee, tair, night, "tair", settings)}
+    except InsufficientDataError:
+        # the run's own nighttime fit reports why; nothing to compare here
+        return _plain_air({"tair": np.nan, "tsoil": np.nan}, 0, {})
     step_hours = (index[1] - index[0]) / np.timedelta64(1, "h") if len(index) > 1 else 0.5
     delays = sorted({int(round(hours / step_hours)) for hours in AIR_DELAYS_HOURS} - {0})
     reco = {0: fits["tair_undelayed"].reco}
@@ -325,42 +290,35 @@ def _air_delay(index, nee, tair, night, settings, soil=None) -> TemperatureChoic
     sad = {records: float(np.sum(np.abs(nee[shared] - values[shared])))
            for records, values in reco.items()}
     undelayed = fits.pop("tair_undelayed")
-    # the soil comparison's sums where there was one (its records), else undelayed air's
-    none = dict(soil.sad) if soil.records else {"tair": sad.get(0, np.nan), "tsoil": np.nan}
-    others = {name: fit for name, fit in soil.fits.items() if name != "tair"}
-    records_compared = soil.records or count
+    none = {"tair": sad.get(0, np.nan), "tsoil": np.nan}
     if count < MIN_SHARED_RECORDS or len(sad) < 2 or min(sad.values()) <= 0:
-        return _plain_air(soil, none, records_compared, {"tair": undelayed, **others})
+        return _plain_air(none, count, {"tair": undelayed})
     best = min((records for records in sad if records), key=lambda r: (sad[r], r))
     delta_bic = laplace_delta_bic(sad[best], sad[0], count, extra_parameters=1)
     weight = bic_weight(delta_bic)
     hours = best * step_hours
-    # the delayed fit's sum only where it shares the records of the sums beside it (the
-    # soil comparison's records differ: its delay is stated by its ΔBIC and weight)
-    sums = none if soil.records else {**none, "tair_delayed": sad[best]}
     if delta_bic < -STRONG_EVIDENCE_BIC:
-        reason = (f"{soil.reason}; air temperature delayed by {hours:g} h explains the "
-                  f"measured night NEE better (ΔBIC delayed - undelayed = {delta_bic:.1f} "
-                  f"over {count} records, one parameter more), as soil respiration lags the "
-                  "air")
-        return TemperatureChoice("tair", reason, sums, records_compared, soil.delta_bic,
-                                 soil.tsoil_weight, {"tair": fits[best],
-                                                     "tair_undelayed": undelayed, **others},
+        reason = (f"the input has no soil temperature; air temperature delayed by {hours:g} h "
+                  f"explains the measured night NEE better (ΔBIC delayed - undelayed = "
+                  f"{delta_bic:.1f} over {count} records, one parameter more), as soil "
+                  "respiration lags the air")
+        return TemperatureChoice("tair", reason, {**none, "tair_delayed": sad[best]}, count,
+                                 np.nan, np.nan, {"tair": fits[best],
+                                                  "tair_undelayed": undelayed},
                                  delay_records=best, delay_hours=hours,
                                  delay_delta_bic=delta_bic, delay_weight=weight)
-    reason = (f"{soil.reason}; air temperature kept undelayed (best delay {hours:g} h: "
-              f"ΔBIC {delta_bic:.1f} over {count} records, not beyond "
+    reason = (f"the input has no soil temperature; air temperature kept undelayed (best "
+              f"delay {hours:g} h: ΔBIC {delta_bic:.1f} over {count} records, not beyond "
               f"{-STRONG_EVIDENCE_BIC:g})")
-    return TemperatureChoice("tair", reason, sums, records_compared, soil.delta_bic,
-                             soil.tsoil_weight, {"tair": undelayed, **others}, delay_hours=0.0,
+    return TemperatureChoice("tair", reason, {**none, "tair_delayed": sad[best]}, count,
+                             np.nan, np.nan, {"tair": undelayed}, delay_hours=0.0,
                              delay_delta_bic=delta_bic, delay_weight=weight)
 
 
-def _plain_air(soil, sad=None, records=None, fits=None) -> TemperatureChoice:
+def _plain_air(sad, count, fits) -> TemperatureChoice:
     """Undelayed air temperature, no delay compared (too few records or fits)."""
-    return TemperatureChoice("tair", soil.reason, soil.sad if sad is None else sad,
-                             soil.records if records is None else records, soil.delta_bic,
-                             soil.tsoil_weight, soil.fits if fits is None else fits)
+    return TemperatureChoice("tair", "the input has no soil temperature", sad, count, np.nan,
+                             np.nan, fits)
 
 
 def _night_fit(index, nee, temperature, night, name, settings):
