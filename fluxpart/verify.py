@@ -28,9 +28,11 @@ Verdicts and exit statuses of ``fluxpart verify``:
   floating-point values differ, but each by at most :data:`ROUNDING_TOLERANCE`
   relative to the larger of the two (values near zero: relative to
   :data:`NEAR_ZERO_SHARE` of the column's largest magnitude; a column that is the
-  difference of others: relative to them; the numbers of the manifest's
-  ``provenance`` alike), and nothing else differs; the largest relative difference and the platform facts that differ
-  are given;
+  difference of others: relative to them; a fitted parameter: relative to its
+  standard error where larger, and the standard error itself to
+  :data:`STANDARD_ERROR_TOLERANCE`; the numbers of the manifest's ``provenance``
+  alike), and nothing else differs; the largest relative difference and the
+  platform facts that differ are given;
 - ``NOT reproduced`` (1): anything else — a larger or non-float difference, a
   changed file, an edited manifest, an extra or missing file, another input;
 - errors (2): no manifest, inputs that cannot be found.
@@ -83,6 +85,18 @@ __all__ = ["NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference", "VerifyReport"
 
 #: Largest relative difference of a float value still classed as floating-point rounding.
 ROUNDING_TOLERANCE = 1e-6
+#: Standard errors of fitted parameters (a column ``X_se`` beside ``X`` in a
+#: ``parameters_*`` table) are compared to
+#: this relative tolerance, and each parameter ``X`` relative to the larger of itself and
+#: its standard error. A standard error is taken from the curvature where the fit
+#: stopped, and the fits stop once a step is below 0.01 standard errors
+#: (:mod:`fluxpart.partition.daytime`): on another CPU a fit that rounding moved can stop a
+#: step apart, and for a parameter the data barely determine (β0 = 15.5 ± 299 µmol m-2
+#: s-1) its standard error moved by 1e-6 to 6e-6 (review round twelve). 1e-4 leaves a
+#: margin of 15 over that, and stays two orders below the precision to which a standard
+#: error is itself known, about 1/√(2(n − p)), 1–10 % for windows of 50–5000 records
+#: (m). Budgets, fluxes and parameters keep :data:`ROUNDING_TOLERANCE`.
+STANDARD_ERROR_TOLERANCE = 1e-4
 #: Values smaller than this share of their column's largest magnitude are compared
 #: relative to that share instead (relative differences of near-zero values mean nothing).
 NEAR_ZERO_SHARE = 1e-3
@@ -393,11 +407,14 @@ def _operand_scale(column, stored: pd.DataFrame, recomputed: pd.DataFrame):
     return np.where(np.isfinite(scale), scale, 0.0)
 
 
-def _float_column(left: pd.Series, right: pd.Series, operand_scale=None):
+def _float_column(left: pd.Series, right: pd.Series, operand_scale=None,
+                  tolerance: float = ROUNDING_TOLERANCE):
     """(differs bitwise, beyond rounding, relative difference) of two float64 columns.
 
     `operand_scale` (per row, optional): the magnitude of the operands of a difference
-    column, the reference of its relative difference where larger than the values.
+    column (or a parameter's standard error), the reference of its relative difference
+    where larger than the values. `tolerance`: the largest relative difference that is
+    rounding.
     """
     a = left.to_numpy(dtype=np.float64, copy=True)
     b = right.to_numpy(dtype=np.float64, copy=True)
@@ -417,8 +434,25 @@ def _float_column(left: pd.Series, right: pd.Series, operand_scale=None):
             gap = np.abs(a - b)
             relative = np.where(both & finite & (reference > 0), gap / np.where(
                 reference > 0, reference, 1.0), np.where(both, np.inf, 0.0))
-        beyond |= both & ~(relative <= ROUNDING_TOLERANCE)
+        beyond |= both & ~(relative <= tolerance)
     return differs, beyond, relative
+
+
+def _standard_error_scale(column, stored: pd.DataFrame, recomputed: pd.DataFrame):
+    """Per-row standard error of a fitted parameter whose table holds ``<column>_se`` (the
+    larger of the stored and recomputed), None for any other column."""
+    name = f"{column}_se"
+    if name not in stored.columns or name not in recomputed.columns:
+        return None
+    values = np.vstack([frame[name].to_numpy(dtype=np.float64) for frame in (stored, recomputed)])
+    with np.errstate(invalid="ignore"):
+        scale = np.fmax.reduce(np.abs(values), axis=0)
+    return np.where(np.isfinite(scale), scale, 0.0)
+
+
+def _is_standard_error(column, stored: pd.DataFrame) -> bool:
+    """Whether `column` is ``X_se`` beside a parameter ``X`` of the same table."""
+    return str(column).endswith("_se") and str(column)[:-3] in stored.columns
 
 
 def _is_float(series: pd.Series) -> bool:
@@ -458,8 +492,13 @@ def compare_tables(name: str, stored: pd.DataFrame, recomputed: pd.DataFrame) ->
     for column in [c for c in stored.columns if c in recomputed.columns]:
         left, right = stored[column], recomputed[column]
         if _is_float(left) and _is_float(right):
+            fitted = str(name).startswith("parameters")     # tables of fitted parameters
+            scale = _operand_scale(column, stored, recomputed)
+            if scale is None and fitted:
+                scale = _standard_error_scale(column, stored, recomputed)
             differs, beyond, relative = _float_column(
-                left, right, _operand_scale(column, stored, recomputed))
+                left, right, scale, STANDARD_ERROR_TOLERANCE
+                if fitted and _is_standard_error(column, stored) else ROUNDING_TOLERANCE)
             kind = "value" if beyond.any() else "rounding"
             shown = beyond if beyond.any() else differs
             position = (int(np.flatnonzero(beyond)[0]) if beyond.any()

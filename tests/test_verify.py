@@ -655,6 +655,30 @@ def test_a_difference_column_rounds_with_its_operands():
         ("gpp_method_difference", "value")]
 
 
+def test_a_barely_determined_parameter_rounds_with_its_standard_error():
+    """A fit stops once its step is below 0.01 standard errors, so on another CPU a
+    parameter the data barely determine (β0 = 15.5 ± 299, review round twelve, AVX2 and
+    AVX-512 switched off) and its standard error move by ~1e-6 of themselves. In a table
+    of fitted parameters the parameter is compared relative to its standard error and the
+    standard error to STANDARD_ERROR_TOLERANCE; a change beyond that, or the same change
+    in a budget table, is still a difference."""
+    from fluxpart.verify import STANDARD_ERROR_TOLERANCE
+
+    stored = pd.DataFrame({"beta0": [15.5, 30.0], "beta0_se": [299.1774558485785, 1.2]})
+    moved = stored.copy()
+    moved.loc[0, "beta0"] *= 1 + 1e-5               # 5e-7 of its standard error
+    moved.loc[0, "beta0_se"] *= 1 + 6e-6
+    found = compare_tables("parameters_daytime", stored, moved)
+    assert {(d.column, d.kind) for d in found} == {("beta0", "rounding"),
+                                                   ("beta0_se", "rounding")}
+    assert {(d.column, d.kind) for d in compare_tables("annual", stored, moved)} == {
+        ("beta0", "value"), ("beta0_se", "value")}
+    beyond = stored.copy()
+    beyond.loc[0, "beta0_se"] *= 1 + 10 * STANDARD_ERROR_TOLERANCE
+    assert [(d.column, d.kind) for d in compare_tables("parameters_daytime", stored,
+                                                       beyond)] == [("beta0_se", "value")]
+
+
 def test_a_computed_manifest_number_rounds_like_a_table_cell():
     """A model-choice criterion in the manifest (a sum of absolute residuals, a BIC
     difference) summed in another order differs in its last digits (IEEE 754: the
