@@ -311,7 +311,8 @@ class VerifyReport:
             lines = [f"reproduced within floating-point rounding (largest relative difference "
                      f"{self.largest_relative_difference:.3g}; {cause}): all {count} tables "
                      f"of {self.directory} match their recomputation within the relative "
-                     f"tolerance {ROUNDING_TOLERANCE:g}"]
+                     f"tolerance {ROUNDING_TOLERANCE:g} (standard errors of fitted "
+                     f"parameters {STANDARD_ERROR_TOLERANCE:g})"]
             lines += [f"  {d.describe()}" for d in self.rounding]
         else:
             failures = list(self.differences)
