@@ -1411,18 +1411,36 @@ def ustar_class_means(series: pd.DataFrame, classes: int, periods: dict) -> dict
     return out
 
 
+def _ustar_years(written: Written, table: pd.DataFrame) -> dict:
+    """Periods of the u* figure: the calendar years of the u* table, else the budget periods.
+
+    The threshold is detected per calendar year of data, so its class means, threshold
+    and bootstrap draws are drawn for the same calendar year, also where a budget year
+    (``year_start``) spans two of them.
+    """
+    if not len(table) or not {"period", "year"} <= set(table.columns):
+        return period_masks(written)
+    index = written.timeseries.index
+    out = {}
+    for year in sorted(pd.unique(table.loc[table["period"] == "year", "year"])):
+        mask = np.asarray(index.year == year, dtype=bool)
+        if mask.any():
+            out[year] = (str(year), index[mask][0], index[mask][-1], mask, False)
+    return out or period_masks(written)
+
+
 def figure_ustar(drawing, written) -> Figure:
     series = written.timeseries
     classes = int(written.setting("ustar_classes", 20))
-    periods = period_masks(written)
-    means = ustar_class_means(series, classes, periods)
     table = written.table("ustar")
+    periods = _ustar_years(written, table)
+    means = ustar_class_means(series, classes, periods)
     draws = written.table("parameters_ustar_bootstrap")
     labels = list(periods)
     colours = _year_colours(drawing, labels)
     figure = drawing.figure(11.0, 4.3, left=0.07, right=0.98, top=0.9, bottom=0.13, wspace=0.22)
     left, right = figure.subplots(1, 2)
-    annual_rows = (table[table["period"] == "year"].set_index("year")
+    annual_rows = (table[table["period"] == "year"].drop_duplicates("year").set_index("year")
                    if len(table) and {"period", "year"} <= set(table.columns) else pd.DataFrame())
     for label in labels:
         colour = colours[label]
@@ -1472,8 +1490,9 @@ def figure_ustar(drawing, written) -> Figure:
         right.legend(loc="upper right")
     else:
         _no_data(right, "no bootstrap distribution\n(fixed threshold or no draws)")
-    right.set_title("Bootstrap distribution of the annual threshold", loc="left")
-    caption = ("Night NEE should level off above the dashed threshold (left; the detector "
+    right.set_title("Bootstrap distribution of each calendar year's threshold", loc="left")
+    caption = ("Night NEE should level off above the dashed threshold (left; one colour per "
+               "calendar year of data, the period a threshold is detected for; the detector "
                "itself works by season and temperature class, Reichstein et al. 2005, Papale "
                "et al. 2006) and the bootstrap thresholds should cluster (right); a wide "
                "spread makes the u* part of the uncertainty large.")
