@@ -1313,6 +1313,30 @@ def _evenly_spaced(count, wanted):
     return np.unique(np.round(np.linspace(0, count - 1, wanted)).astype(int))
 
 
+def _period_e0_curves(e0_annual, windows, times, temperature) -> list:
+    """(year, E0 [K], median Rref [µmol m-2 s-1], temperature grid [°C]) per calendar year.
+
+    The nighttime E0 is fitted per calendar year of data (``parameters_nighttime_e0_annual``);
+    a period's night records (``times``, ``temperature``) are split by calendar year, and
+    each year with an E0, Rref windows centred in it and temperatures gets its curve.
+    """
+    if not len(e0_annual) or "e0" not in e0_annual.columns or not len(windows):
+        return []
+    centres = pd.DatetimeIndex(windows["window_centre"]).year
+    curves = []
+    for year in sorted(set(times.year)):
+        if year not in e0_annual.index or not np.isfinite(float(e0_annual.loc[year, "e0"])):
+            continue
+        inside = np.asarray(times.year == year) & np.isfinite(temperature)
+        rref = windows["rref"].to_numpy(dtype=float)[np.asarray(centres == year)]
+        if inside.sum() < 2 or not rref.size:
+            continue
+        finite = temperature[inside]
+        grid = np.linspace(np.percentile(finite, 1), np.percentile(finite, 99), 60)
+        curves.append((year, float(e0_annual.loc[year, "e0"]), float(np.median(rref)), grid))
+    return curves
+
+
 def figure_night_respiration(drawing, written, interval) -> Figure:
     series = written.timeseries
     driver = _respiration_driver(written)
@@ -1342,9 +1366,6 @@ def figure_night_respiration(drawing, written, interval) -> Figure:
             continue
         scatter = axis.scatter(temperature[rows], nee[rows], c=doy[rows], cmap=colormap,
                                norm=norm, s=3, alpha=0.5, linewidths=0)
-        e0 = np.nan
-        if len(e0_annual) and label in e0_annual.index and "e0" in e0_annual.columns:
-            e0 = float(e0_annual.loc[label, "e0"])
         windows = rref_windows
         if len(windows) and "window_centre" in windows.columns:
             centres = pd.DatetimeIndex(windows["window_centre"])
@@ -1363,12 +1384,14 @@ def figure_night_respiration(drawing, written, interval) -> Figure:
             colour = colormap(norm(pd.Timestamp(window["window_centre"]).day_of_year))
             axis.plot(grid, curve, color="#000000", linewidth=2.8)
             axis.plot(grid, curve, color=colour, linewidth=1.6)
-        if np.isfinite(e0) and len(windows):
-            finite = temperature[rows][np.isfinite(temperature[rows])]
-            grid = np.linspace(np.percentile(finite, 1), np.percentile(finite, 99), 60)
-            rref = float(np.median(windows["rref"]))
-            axis.plot(grid, lloyd_taylor(grid, rref, e0), color="#000000", linestyle="--",
-                      linewidth=1.5, label=f"E0 = {e0:.0f} K, median Rref = {rref:.2f}")
+        curves = _period_e0_curves(e0_annual, windows, times, temperature[rows])
+        for (year, e0, rref, grid), style in zip(curves, ("--", ":", "-."), strict=False):
+            # E0 is fitted per calendar year: a budget year across two shows both
+            named = f"{year}: " if len(curves) > 1 else ""
+            axis.plot(grid, lloyd_taylor(grid, rref, e0), color="#000000", linestyle=style,
+                      linewidth=1.5, label=f"{named}E0 = {e0:.0f} K, median Rref = "
+                      f"{rref:.2f} {_FLUX_UNIT}")
+        if curves:
             axis.legend(loc="upper left")
         axis.set_xlabel(f"{_temperature_label(temperature_column)} [°C]")
         axis.set_ylabel(f"Night NEE [{_FLUX_UNIT}]")
@@ -1379,8 +1402,9 @@ def figure_night_respiration(drawing, written, interval) -> Figure:
         figure.colorbar(scatter, cax=bar_axis).set_label("Day of year")
     caption = ("Night respiration should rise with temperature along the Lloyd–Taylor curves "
                "(Lloyd & Taylor 1994) fitted in short windows (solid, coloured by date) and "
-               "for the period (dashed); a cloud far from the curves points to a poor fit or "
-               "to advection at night.")
+               "with each calendar year's E0 (black, dashed; a budget year across two "
+               "calendar years has a dotted second curve); a cloud far from the curves points "
+               "to a poor fit or to advection at night.")
     return Figure("night_respiration.png", drawing.png(figure), "Night respiration and the "
                   "Lloyd–Taylor fits", caption)
 

@@ -604,6 +604,32 @@ def test_the_u_star_figure_draws_the_calendar_years_the_thresholds_belong_to():
     assert list(figures._ustar_years(written, pd.DataFrame())) == [2021]
 
 
+def test_night_respiration_curves_use_each_calendar_years_e0():
+    """E0 is fitted per calendar year of data (one short-term E0 per site-year, Reichstein et
+    al. 2005 (m)); a July-June panel drew the first year's E0 alone, labelled as the whole
+    period's (review round thirteen: 315 K shown where Jan-Jun 2021 used 314 K). Each
+    calendar year of the period now gets its own curve: its E0 and the median Rref of the
+    windows centred in it (numpy median), over that year's temperatures."""
+    times = pd.date_range("2021-07-01", "2022-06-30 23:00", freq="6h")
+    temperature = np.linspace(-5.0, 25.0, len(times))
+    e0_annual = pd.DataFrame({"e0": [300.0, 320.0]}, index=pd.Index([2021, 2022], name="year"))
+    windows = pd.DataFrame({
+        "window_centre": pd.to_datetime(["2021-08-01", "2021-10-01", "2021-12-01",
+                                         "2022-02-01", "2022-04-01"]),
+        "rref": [1.0, 2.0, 4.0, 3.0, 5.0]})
+    curves = figures._period_e0_curves(e0_annual, windows, times, temperature)
+    assert [(year, e0) for year, e0, _, _ in curves] == [(2021, 300.0), (2022, 320.0)]
+    assert [rref for _, _, rref, _ in curves] == [np.median([1.0, 2.0, 4.0]),
+                                                   np.median([3.0, 5.0])]
+    first_half = temperature[times.year == 2021]
+    assert curves[0][3][0] == pytest.approx(np.percentile(first_half, 1))
+    assert curves[0][3][-1] == pytest.approx(np.percentile(first_half, 99))
+    # a calendar year: one curve, as before
+    inside = times.year == 2022
+    assert len(figures._period_e0_curves(e0_annual, windows, times[inside],
+                                         temperature[inside])) == 1
+
+
 def test_fill_quality_codes_and_labels_agree():
     """Integer codes (0 measured, 1-3 A-C, -1 unfilled) and string labels read the same."""
     codes = fill_category(np.array([0, 1, 2, 3, -1], dtype=np.int8))
