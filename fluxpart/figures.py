@@ -883,7 +883,11 @@ _BAND_STYLE = {
 def figure_cumulative(drawing, written, interval) -> Figure:
     curves, scenario_columns, has_random = cumulative_bands(written, interval)
     periods = period_masks(written)
-    figure = drawing.figure(10.0, 4.6, left=0.08, right=0.98, top=0.9, bottom=0.12)
+    # one legend row per period below the axes, where no curve runs (a legend inside
+    # covered a second budget year's curve)
+    height = 4.6 + 0.22 * len(curves)
+    figure = drawing.figure(10.0, height, left=0.08, right=0.98, top=1 - 0.46 / height,
+                            bottom=(0.55 + 0.22 * len(curves)) / height)
     axis = figure.subplots()
     colours = _year_colours(drawing, list(curves))
     kinds = set()
@@ -916,9 +920,10 @@ def figure_cumulative(drawing, written, interval) -> Figure:
                  + (f"; partial period, ends {last:%d %b %Y}" if partial else ""))
     else:
         title = ("Cumulative NEE per budget period, each from its own first record "
-                 f"({', '.join(f'{s:%d %b %Y}' for s in starts)})")
+                 f"({', '.join(f'{s:%d %b %Y}' for s in starts)}; below zero: net uptake)")
     axis.set_title(title, loc="left")
-    axis.legend(loc="lower left", fontsize=7.5)
+    axis.legend(loc="upper left", bbox_to_anchor=(0.0, -0.06), ncols=2, fontsize=7.5,
+                frameon=False)
     if "interval" in kinds:
         what = "the written 95 % interval of the annual NEE (shaded, drawn growing with time)"
     elif has_random:

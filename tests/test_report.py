@@ -630,6 +630,34 @@ def test_night_respiration_curves_use_each_calendar_years_e0():
                                          temperature[inside])) == 1
 
 
+def test_the_cumulative_legend_covers_no_curve_of_a_two_budget_year_record(folder):
+    """The legend lies below the plotting area, measured by matplotlib's own window
+    extents, so it hides no curve: placed in the lower left it covered the second July-June
+    budget year's band and curve of a southern-hemisphere record (review round thirteen)."""
+    result = folder["result"]
+    annual = result.annual
+    second = annual.rename(index={2021: 2022}).assign(
+        period_start=pd.Timestamp("2022-01-01"), period_end=pd.Timestamp("2023-01-01"))
+    series = result.timeseries
+    shifted = series.set_axis(series.index + pd.DateOffset(years=1))
+    written = Written(manifest={}, tables={"timeseries": pd.concat([series, shifted]),
+                                           "annual": pd.concat([annual, second])})
+    drawing = figures.Drawing()
+    drawn = []
+    original = drawing.png
+    drawing.png = lambda figure: (drawn.append(figure), original(figure))[1]
+    with drawing.mpl.rc_context():
+        figures.figure_cumulative(drawing, written, 30)
+    figure = drawn[0]
+    renderer = figure.canvas.get_renderer()
+    axis = figure.axes[0]
+    legend = axis.get_legend().get_window_extent(renderer)
+    plot = axis.get_window_extent(renderer)
+    assert legend.y1 <= plot.y0, (legend, plot)
+    assert len(axis.get_legend().get_texts()) == 4
+    assert legend.y0 >= 0
+
+
 def test_fill_quality_codes_and_labels_agree():
     """Integer codes (0 measured, 1-3 A-C, -1 unfilled) and string labels read the same."""
     codes = fill_category(np.array([0, 1, 2, 3, -1], dtype=np.int8))
