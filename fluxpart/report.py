@@ -457,9 +457,23 @@ def _annual_groups(annual: pd.DataFrame) -> dict[str, list[str]]:
     return {"budget": budget, "uncertainty": uncertainty, "coverage": coverage}
 
 
+def _year_heading(annual: pd.DataFrame, year: int) -> str:
+    """A column heading: the year, and its days where the budget year is not a calendar year
+    (``year`` is the calendar year a budget year starts in, so "2020" alone would read as
+    January to December 2020)."""
+    start = annual.loc[year, "period_start"] if "period_start" in annual.columns else None
+    if start is None or pd.isna(start) or (pd.Timestamp(start).month,
+                                           pd.Timestamp(start).day) == (1, 1):
+        return _e(year)
+    start = pd.Timestamp(start)
+    last = start + pd.DateOffset(years=1) - pd.Timedelta(days=1)
+    return (f'{_e(year)}<br><span class="small">{start:%d %b %Y} – '
+            f"{last:%d %b %Y}</span>")
+
+
 def _annual_table(annual: pd.DataFrame, columns, metadata, table_id: str) -> str:
     years = [int(y) for y in annual.index]
-    head = "".join(f'<th scope="col">{_e(y)}</th>' for y in years)
+    head = "".join(f'<th scope="col">{_year_heading(annual, y)}</th>' for y in years)
     rows = []
     for column in columns:
         unit, description = metadata.get(column, ("", ""))

@@ -658,6 +658,26 @@ def test_the_cumulative_legend_covers_no_curve_of_a_two_budget_year_record(folde
     assert legend.y0 >= 0
 
 
+def test_annual_table_headings_name_a_budget_years_days():
+    """`year` is the calendar year a budget year starts in (README, budget year); a July-June
+    year's column was headed "2020" alone, which reads as January-December 2020 (review
+    round thirteen). The heading now gives its first and last day; a calendar year stays
+    a bare year."""
+    annual = pd.DataFrame({"nee": [-306.2, -286.1],
+                           "period_start": pd.to_datetime(["2020-07-01", "2021-07-01"]),
+                           "period_end": pd.to_datetime(["2021-07-01", "2022-07-01"])},
+                          index=pd.Index([2020, 2021], name="year"))
+    table = report._annual_table(annual, ["nee"], {"nee": ("g C m-2", "net")}, "t")
+    headings = re.findall(r'<th scope="col">(.*?)</th>', table)[3:]
+    assert [re.sub(r"<[^>]+>", " ", h).split() for h in headings] == [
+        ["2020", "01", "Jul", "2020", "–", "30", "Jun", "2021"],
+        ["2021", "01", "Jul", "2021", "–", "30", "Jun", "2022"]]
+    calendar = annual.assign(period_start=pd.to_datetime(["2020-01-01", "2021-01-01"]),
+                             period_end=pd.to_datetime(["2021-01-01", "2022-01-01"]))
+    table = report._annual_table(calendar, ["nee"], {"nee": ("g C m-2", "net")}, "t")
+    assert re.findall(r'<th scope="col">(.*?)</th>', table)[3:] == ["2020", "2021"]
+
+
 def test_fill_quality_codes_and_labels_agree():
     """Integer codes (0 measured, 1-3 A-C, -1 unfilled) and string labels read the same."""
     codes = fill_category(np.array([0, 1, 2, 3, -1], dtype=np.int8))
