@@ -13,9 +13,10 @@ Layout (one file, two time axes):
   [kg m-2 s-1] (the record means; ``cell_methods = "time: mean"``), the 1-sigma random
   error of NEE, the drivers (Rg, Tair, VPD, u*, Tsoil where present) and the flag
   variables ``nee_fill_quality`` and ``rejection_reason`` (``flag_values`` /
-  ``flag_meanings``);
+  ``flag_meanings``), and ``<driver>_fill_quality`` for each gap-filled driver (its
+  ``ancillary_variables``);
 - ``day`` (one per local standard day): the same fluxes as daily means [kg m-2 s-1]
-  and as daily sums [g m-2, carbon] (``cell_methods = "time: sum"``), with their 1-sigma
+  and as daily sums [g m-2, carbon] (``cell_methods = "day: sum"``), with their 1-sigma
   where the run estimated it;
 - ``time_bounds`` and ``day_bounds`` give each cell's start and end; coordinate values
   are the cell midpoints, in UTC (the site's local standard time minus its
@@ -232,6 +233,13 @@ def to_xarray(result):
             attrs = {"long_name": long_name, "units": unit, "cell_methods": "time: mean"}
             if name in STANDARD_NAMES:
                 attrs["standard_name"] = STANDARD_NAMES[name]
+            quality = f"{name}_fill_quality"
+            if column.endswith("_filled") and quality in series.columns:
+                # which values are measured and which filled, as for NEE (CF-1.10 3.4, 3.5)
+                codes, flag_attrs = _flag(series[quality].array, quality,
+                                          f"fill quality of {name}")
+                variables[quality] = ("time", codes, flag_attrs)
+                attrs["ancillary_variables"] = quality
             variables[name] = ("time", series[column].to_numpy(dtype=float) * factor, attrs)
 
     daily = result.daily

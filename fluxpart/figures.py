@@ -883,7 +883,11 @@ _BAND_STYLE = {
 def figure_cumulative(drawing, written, interval) -> Figure:
     curves, scenario_columns, has_random = cumulative_bands(written, interval)
     periods = period_masks(written)
-    figure = drawing.figure(10.0, 4.6, left=0.08, right=0.98, top=0.9, bottom=0.12)
+    # one legend row per period below the axes, where no curve runs (a legend inside
+    # covered a second budget year's curve)
+    height = 4.6 + 0.22 * len(curves)
+    figure = drawing.figure(10.0, height, left=0.08, right=0.98, top=1 - 0.46 / height,
+                            bottom=(0.55 + 0.22 * len(curves)) / height)
     axis = figure.subplots()
     colours = _year_colours(drawing, list(curves))
     kinds = set()
@@ -916,9 +920,10 @@ def figure_cumulative(drawing, written, interval) -> Figure:
                  + (f"; partial period, ends {last:%d %b %Y}" if partial else ""))
     else:
         title = ("Cumulative NEE per budget period, each from its own first record "
-                 f"({', '.join(f'{s:%d %b %Y}' for s in starts)})")
+                 f"({', '.join(f'{s:%d %b %Y}' for s in starts)}; below zero: net uptake)")
     axis.set_title(title, loc="left")
-    axis.legend(loc="lower left", fontsize=7.5)
+    axis.legend(loc="upper left", bbox_to_anchor=(0.0, -0.06), ncols=2, fontsize=7.5,
+                frameon=False)
     if "interval" in kinds:
         what = "the written 95 % interval of the annual NEE (shaded, drawn growing with time)"
     elif has_random:
@@ -1313,6 +1318,30 @@ def _evenly_spaced(count, wanted):
     return np.unique(np.round(np.linspace(0, count - 1, wanted)).astype(int))
 
 
+def _period_e0_curves(e0_annual, windows, times, temperature) -> list:
+    """(year, E0 [K], median Rref [µmol m-2 s-1], temperature grid [°C]) per calendar year.
+
+    The nighttime E0 is fitted per calendar year of data (``parameters_nighttime_e0_annual``);
+    a period's night records (``times``, ``temperature``) are split by calendar year, and
+    each year with an E0, Rref windows centred in it and temperatures gets its curve.
+    """
+    if not len(e0_annual) or "e0" not in e0_annual.columns or not len(windows):
+        return []
+    centres = pd.DatetimeIndex(windows["window_centre"]).year
+    curves = []
+    for year in sorted(set(times.year)):
+        if year not in e0_annual.index or not np.isfinite(float(e0_annual.loc[year, "e0"])):
+            continue
+        inside = np.asarray(times.year == year) & np.isfinite(temperature)
+        rref = windows["rref"].to_numpy(dtype=float)[np.asarray(centres == year)]
+        if inside.sum() < 2 or not rref.size:
+            continue
+        finite = temperature[inside]
+        grid = np.linspace(np.percentile(finite, 1), np.percentile(finite, 99), 60)
+        curves.append((year, float(e0_annual.loc[year, "e0"]), float(np.median(rref)), grid))
+    return curves
+
+
 def figure_night_respiration(drawing, written, interval) -> Figure:
     series = written.timeseries
     driver = _respiration_driver(written)
@@ -1342,9 +1371,6 @@ def figure_night_respiration(drawing, written, interval) -> Figure:
             continue
         scatter = axis.scatter(temperature[rows], nee[rows], c=doy[rows], cmap=colormap,
                                norm=norm, s=3, alpha=0.5, linewidths=0)
-        e0 = np.nan
-        if len(e0_annual) and label in e0_annual.index and "e0" in e0_annual.columns:
-            e0 = float(e0_annual.loc[label, "e0"])
         windows = rref_windows
         if len(windows) and "window_centre" in windows.columns:
             centres = pd.DatetimeIndex(windows["window_centre"])
@@ -1363,12 +1389,14 @@ def figure_night_respiration(drawing, written, interval) -> Figure:
             colour = colormap(norm(pd.Timestamp(window["window_centre"]).day_of_year))
             axis.plot(grid, curve, color="#000000", linewidth=2.8)
             axis.plot(grid, curve, color=colour, linewidth=1.6)
-        if np.isfinite(e0) and len(windows):
-            finite = temperature[rows][np.isfinite(temperature[rows])]
-            grid = np.linspace(np.percentile(finite, 1), np.percentile(finite, 99), 60)
-            rref = float(np.median(windows["rref"]))
-            axis.plot(grid, lloyd_taylor(grid, rref, e0), color="#000000", linestyle="--",
-                      linewidth=1.5, label=f"E0 = {e0:.0f} K, median Rref = {rref:.2f}")
+        curves = _period_e0_curves(e0_annual, windows, times, temperature[rows])
+        for (year, e0, rref, grid), style in zip(curves, ("--", ":", "-."), strict=False):
+            # E0 is fitted per calendar year: a budget year across two shows both
+            named = f"{year}: " if len(curves) > 1 else ""
+            axis.plot(grid, lloyd_taylor(grid, rref, e0), color="#000000", linestyle=style,
+                      linewidth=1.5, label=f"{named}E0 = {e0:.0f} K, median Rref = "
+                      f"{rref:.2f} {_FLUX_UNIT}")
+        if curves:
             axis.legend(loc="upper left")
         axis.set_xlabel(f"{_temperature_label(temperature_column)} [°C]")
         axis.set_ylabel(f"Night NEE [{_FLUX_UNIT}]")
@@ -1379,8 +1407,9 @@ def figure_night_respiration(drawing, written, interval) -> Figure:
         figure.colorbar(scatter, cax=bar_axis).set_label("Day of year")
     caption = ("Night respiration should rise with temperature along the Lloyd–Taylor curves "
                "(Lloyd & Taylor 1994) fitted in short windows (solid, coloured by date) and "
-               "for the period (dashed); a cloud far from the curves points to a poor fit or "
-               "to advection at night.")
+               "with each calendar year's E0 (black, dashed; a budget year across two "
+               "calendar years has a dotted second curve); a cloud far from the curves points "
+               "to a poor fit or to advection at night.")
     return Figure("night_respiration.png", drawing.png(figure), "Night respiration and the "
                   "Lloyd–Taylor fits", caption)
 
@@ -1411,18 +1440,36 @@ def ustar_class_means(series: pd.DataFrame, classes: int, periods: dict) -> dict
     return out
 
 
+def _ustar_years(written: Written, table: pd.DataFrame) -> dict:
+    """Periods of the u* figure: the calendar years of the u* table, else the budget periods.
+
+    The threshold is detected per calendar year of data, so its class means, threshold
+    and bootstrap draws are drawn for the same calendar year, also where a budget year
+    (``year_start``) spans two of them.
+    """
+    if not len(table) or not {"period", "year"} <= set(table.columns):
+        return period_masks(written)
+    index = written.timeseries.index
+    out = {}
+    for year in sorted(pd.unique(table.loc[table["period"] == "year", "year"])):
+        mask = np.asarray(index.year == year, dtype=bool)
+        if mask.any():
+            out[year] = (str(year), index[mask][0], index[mask][-1], mask, False)
+    return out or period_masks(written)
+
+
 def figure_ustar(drawing, written) -> Figure:
     series = written.timeseries
     classes = int(written.setting("ustar_classes", 20))
-    periods = period_masks(written)
-    means = ustar_class_means(series, classes, periods)
     table = written.table("ustar")
+    periods = _ustar_years(written, table)
+    means = ustar_class_means(series, classes, periods)
     draws = written.table("parameters_ustar_bootstrap")
     labels = list(periods)
     colours = _year_colours(drawing, labels)
     figure = drawing.figure(11.0, 4.3, left=0.07, right=0.98, top=0.9, bottom=0.13, wspace=0.22)
     left, right = figure.subplots(1, 2)
-    annual_rows = (table[table["period"] == "year"].set_index("year")
+    annual_rows = (table[table["period"] == "year"].drop_duplicates("year").set_index("year")
                    if len(table) and {"period", "year"} <= set(table.columns) else pd.DataFrame())
     for label in labels:
         colour = colours[label]
@@ -1472,8 +1519,9 @@ def figure_ustar(drawing, written) -> Figure:
         right.legend(loc="upper right")
     else:
         _no_data(right, "no bootstrap distribution\n(fixed threshold or no draws)")
-    right.set_title("Bootstrap distribution of the annual threshold", loc="left")
-    caption = ("Night NEE should level off above the dashed threshold (left; the detector "
+    right.set_title("Bootstrap distribution of each calendar year's threshold", loc="left")
+    caption = ("Night NEE should level off above the dashed threshold (left; one colour per "
+               "calendar year of data, the period a threshold is detected for; the detector "
                "itself works by season and temperature class, Reichstein et al. 2005, Papale "
                "et al. 2006) and the bootstrap thresholds should cluster (right); a wide "
                "spread makes the u* part of the uncertainty large.")

@@ -202,18 +202,46 @@ def _period_heading(label, first, last, partial) -> str:
     return f"{_e(label)}: {span}"
 
 
-def _ustar_range(written: Written, label) -> str:
+def _ustar_year_rows(written: Written) -> pd.DataFrame:
+    """The u* table's whole-year rows (one per calendar year of data), by year."""
     table = written.table("ustar")
-    if not len(table) or not {"period", "year", "threshold_p05", "threshold_p95"} <= set(
-            table.columns):
+    if not len(table) or not {"period", "year"} <= set(table.columns):
+        return pd.DataFrame()
+    return table[table["period"] == "year"].drop_duplicates("year").set_index("year")
+
+
+def _ustar_range(written: Written, year) -> str:
+    rows = _ustar_year_rows(written)
+    if year not in rows.index or not {"threshold_p05", "threshold_p95"} <= set(rows.columns):
         return ""
-    rows = table[(table["period"] == "year") & (table["year"] == label)]
-    if not len(rows):
-        return ""
-    low, high = rows.iloc[0]["threshold_p05"], rows.iloc[0]["threshold_p95"]
+    low, high = rows.loc[year, "threshold_p05"], rows.loc[year, "threshold_p95"]
     if not (_finite(low) and _finite(high)):
         return ""
     return f" (bootstrap 5–95 %: {float(low):.3f}–{float(high):.3f} m s-1)"
+
+
+def _ustar_fact(written: Written, label, row, mask) -> str:
+    """The summary's u* line: the period's threshold with the bootstrap range it came from.
+
+    u* thresholds are detected per calendar year of data; a budget year from another
+    ``year_start`` spans two of them and its ``ustar_threshold`` is the larger. Each
+    calendar year's threshold is then named with its own bootstrap range, so that no
+    threshold is printed beside another year's range.
+    """
+    value = _number(row["ustar_threshold"], 3, "ustar_threshold", label, "m s-1")
+    rows = _ustar_year_rows(written)
+    years = sorted(set(written.timeseries.index[mask].year) & set(rows.index)) \
+        if "threshold" in rows.columns else []
+    if len(years) < 2:
+        return (f"{value}{_ustar_range(written, label)}; night records below it were removed "
+                "before gap filling.")
+    parts = "; ".join(
+        f"{year}: {float(rows.loc[year, 'threshold']):.3f} m s-1{_ustar_range(written, year)}"
+        if _finite(rows.loc[year, "threshold"]) else f"{year}: none written"
+        for year in years)
+    return (f"{value}, the largest of the thresholds of the calendar years in this period "
+            f"({parts}); night records below their year's threshold were removed before gap "
+            "filling.")
 
 
 def _summary_card(written: Written) -> tuple[str, bool]:
@@ -287,9 +315,7 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                             if _finite(row.get("nee_share_from_filled")) else "") + ".</li>")
         if "ustar_threshold" in row.index:
             facts.append("<li><strong>u* threshold:</strong> "
-                         f"{_number(row['ustar_threshold'], 3, 'ustar_threshold', label, 'm s-1')}"
-                         f"{_ustar_range(written, label)}; night records below it were "
-                         "removed before gap filling.</li>")
+                         f"{_ustar_fact(written, label, row, periods[label][3])}</li>")
         if "methods_agree" in row.index and pd.notna(row["methods_agree"]):
             agree = bool(row["methods_agree"])
             margin = written.setting("agreement_margin")
@@ -431,9 +457,23 @@ def _annual_groups(annual: pd.DataFrame) -> dict[str, list[str]]:
     return {"budget": budget, "uncertainty": uncertainty, "coverage": coverage}
 
 
+def _year_heading(annual: pd.DataFrame, year: int) -> str:
+    """A column heading: the year, and its days where the budget year is not a calendar year
+    (``year`` is the calendar year a budget year starts in, so "2020" alone would read as
+    January to December 2020)."""
+    start = annual.loc[year, "period_start"] if "period_start" in annual.columns else None
+    if start is None or pd.isna(start) or (pd.Timestamp(start).month,
+                                           pd.Timestamp(start).day) == (1, 1):
+        return _e(year)
+    start = pd.Timestamp(start)
+    last = start + pd.DateOffset(years=1) - pd.Timedelta(days=1)
+    return (f'{_e(year)}<br><span class="small">{start:%d %b %Y} – '
+            f"{last:%d %b %Y}</span>")
+
+
 def _annual_table(annual: pd.DataFrame, columns, metadata, table_id: str) -> str:
     years = [int(y) for y in annual.index]
-    head = "".join(f'<th scope="col">{_e(y)}</th>' for y in years)
+    head = "".join(f'<th scope="col">{_year_heading(annual, y)}</th>' for y in years)
     rows = []
     for column in columns:
         unit, description = metadata.get(column, ("", ""))

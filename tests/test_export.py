@@ -86,6 +86,29 @@ def test_flags_explain_themselves(exported):
     assert "low_ustar" in dataset["rejection_reason"].attrs["flag_meanings"].split()
 
 
+def test_gap_filled_drivers_say_which_values_were_filled(exported):
+    """Each gap-filled driver links a flag variable telling measured from filled values
+    (CF conventions 1.10, section 3.4 ancillary data and 3.5 flags): a modeller forcing a
+    model with Tair or Rg from the file must see which values were filled (review round
+    thirteen: rg, tair, vpd and tsoil were marked "gap-filled" with no flag)."""
+    result, dataset = exported
+    series = result.timeseries
+    drivers = [name for name in ("rg", "tair", "vpd", "tsoil") if name in dataset]
+    assert drivers
+    for name in drivers:
+        flag_name = dataset[name].attrs["ancillary_variables"]
+        assert flag_name == f"{name}_fill_quality"
+        flag = dataset[flag_name]
+        meanings = flag.attrs["flag_meanings"].split()
+        assert len(meanings) == len(flag.attrs["flag_values"])
+        decoded = np.array(meanings)[flag.to_numpy().astype(int)]
+        np.testing.assert_array_equal(decoded, series[flag_name].astype(str))
+        # the demo's drivers have gaps: both measured and filled values are in the file
+        assert "measured" in set(decoded) and set(decoded) - {"measured"}
+    # u* and RH are exported as measured (missing = NaN), so they carry no fill flag
+    assert "ancillary_variables" not in dataset["ustar"].attrs
+
+
 def test_site_and_conventions_are_global_attributes(exported):
     """The site, CF version, feature type and the caution travel with the file."""
     result, dataset = exported

@@ -542,6 +542,142 @@ def test_a_budget_year_spans_two_calendar_years():
     assert not partial  # a full budget year even though it is not a calendar year
 
 
+def _july_to_june(thresholds):
+    """A budget year 1 July 2021 - 30 June 2022 over the u* rows of calendar years 2021, 2022."""
+    index = pd.date_range("2021-07-01", "2022-06-30 23:30", freq="30min")
+    series = pd.DataFrame({"nee_filled": 1.0, "nee": 1.0, "ustar": 0.3, "is_night": True,
+                           "rejection_reason": "kept"}, index=index)
+    annual = pd.DataFrame({"nee": [-100.0], "period_start": [pd.Timestamp("2021-07-01")],
+                           "period_end": [pd.Timestamp("2022-07-01")], "complete": [True],
+                           "ustar_threshold": [max(t for t, _, _ in thresholds.values())]},
+                          index=pd.Index([2021], name="year"))
+    ustar = pd.DataFrame([{"year": year, "period": "year", "threshold": t, "threshold_p05": low,
+                           "threshold_p95": high}
+                          for year, (t, low, high) in thresholds.items()])
+    return Written(manifest={}, tables={"timeseries": series, "annual": annual,
+                                        "ustar": ustar})
+
+
+def test_a_budget_year_names_each_calendar_years_u_star_threshold_with_its_own_range():
+    """u* thresholds are detected per calendar year of data; a July-June budget year shows
+    both years' thresholds, each beside the bootstrap range of its own year. A percentile
+    interval belongs to the estimate it was bootstrapped for (Efron & Tibshirani 1993 (m)):
+    the page showed "0.181 m s-1 (bootstrap 5-95 %: 0.147-0.174)", the 2022 threshold beside
+    the 2021 range (review round thirteen, a southern-hemisphere site with year_start 07-01).
+    """
+    written = _july_to_june({2021: (0.152, 0.147, 0.174), 2022: (0.181, 0.148, 0.176)})
+    summary, _ = report._summary_card(written)
+    line = html.unescape(re.sub(r"<[^>]+>", "", re.search(
+        r"u\* threshold:</strong>(.*?)</li>", summary).group(1)))
+    assert line.startswith(" 0.181 m s-1, the largest of the thresholds of the calendar years")
+    assert "2021: 0.152 m s-1 (bootstrap 5–95 %: 0.147–0.174 m s-1)" in line
+    assert "2022: 0.181 m s-1 (bootstrap 5–95 %: 0.148–0.176 m s-1)" in line
+    assert "0.181 m s-1 (bootstrap 5–95 %: 0.147" not in line
+    # a calendar budget year keeps the one threshold with its own range
+    index = pd.date_range("2021-01-01", "2021-12-31 23:30", freq="30min")
+    single = Written(manifest={}, tables={
+        "timeseries": pd.DataFrame({"nee_filled": 1.0}, index=index),
+        "annual": pd.DataFrame({"nee": [-100.0], "ustar_threshold": [0.152]},
+                               index=pd.Index([2021], name="year")),
+        "ustar": written.table("ustar")})
+    summary, _ = report._summary_card(single)
+    line = re.sub(r"<[^>]+>", "", re.search(r"u\* threshold:</strong>(.*?)</li>",
+                                              summary).group(1))
+    assert line == (" 0.152 m s-1 (bootstrap 5–95 %: 0.147–0.174 m s-1); night records below "
+                    "it were removed before gap filling.")
+
+
+def test_the_u_star_figure_draws_the_calendar_years_the_thresholds_belong_to():
+    """The threshold, its bootstrap draws and the class means it is read from share the
+    calendar year the detector used (the one-year-per-threshold rule of the pipeline): a
+    July-June budget year over 2021 and 2022 draws both years, 2022 included, each from its
+    own records (the figure drew the budget years 2020 and 2021 over calendar thresholds
+    and left out 2022's, review round thirteen)."""
+    written = _july_to_june({2021: (0.152, 0.147, 0.174), 2022: (0.181, 0.148, 0.176)})
+    periods = figures._ustar_years(written, written.table("ustar"))
+    assert list(periods) == [2021, 2022]
+    index = written.timeseries.index
+    for year, (_, first, last, mask, _) in periods.items():
+        assert (mask == (index.year == year)).all()
+        assert first.year == last.year == year
+    # without a u* table the budget periods stay the figure's periods
+    assert list(figures._ustar_years(written, pd.DataFrame())) == [2021]
+
+
+def test_night_respiration_curves_use_each_calendar_years_e0():
+    """E0 is fitted per calendar year of data (one short-term E0 per site-year, Reichstein et
+    al. 2005 (m)); a July-June panel drew the first year's E0 alone, labelled as the whole
+    period's (review round thirteen: 315 K shown where Jan-Jun 2021 used 314 K). Each
+    calendar year of the period now gets its own curve: its E0 and the median Rref of the
+    windows centred in it (numpy median), over that year's temperatures."""
+    times = pd.date_range("2021-07-01", "2022-06-30 23:00", freq="6h")
+    temperature = np.linspace(-5.0, 25.0, len(times))
+    e0_annual = pd.DataFrame({"e0": [300.0, 320.0]}, index=pd.Index([2021, 2022], name="year"))
+    windows = pd.DataFrame({
+        "window_centre": pd.to_datetime(["2021-08-01", "2021-10-01", "2021-12-01",
+                                         "2022-02-01", "2022-04-01"]),
+        "rref": [1.0, 2.0, 4.0, 3.0, 5.0]})
+    curves = figures._period_e0_curves(e0_annual, windows, times, temperature)
+    assert [(year, e0) for year, e0, _, _ in curves] == [(2021, 300.0), (2022, 320.0)]
+    assert [rref for _, _, rref, _ in curves] == [np.median([1.0, 2.0, 4.0]),
+                                                   np.median([3.0, 5.0])]
+    first_half = temperature[times.year == 2021]
+    assert curves[0][3][0] == pytest.approx(np.percentile(first_half, 1))
+    assert curves[0][3][-1] == pytest.approx(np.percentile(first_half, 99))
+    # a calendar year: one curve, as before
+    inside = times.year == 2022
+    assert len(figures._period_e0_curves(e0_annual, windows, times[inside],
+                                         temperature[inside])) == 1
+
+
+def test_the_cumulative_legend_covers_no_curve_of_a_two_budget_year_record(folder):
+    """The legend lies below the plotting area, measured by matplotlib's own window
+    extents, so it hides no curve: placed in the lower left it covered the second July-June
+    budget year's band and curve of a southern-hemisphere record (review round thirteen)."""
+    result = folder["result"]
+    annual = result.annual
+    second = annual.rename(index={2021: 2022}).assign(
+        period_start=pd.Timestamp("2022-01-01"), period_end=pd.Timestamp("2023-01-01"))
+    series = result.timeseries
+    shifted = series.set_axis(series.index + pd.DateOffset(years=1))
+    written = Written(manifest={}, tables={"timeseries": pd.concat([series, shifted]),
+                                           "annual": pd.concat([annual, second])})
+    drawing = figures.Drawing()
+    drawn = []
+    original = drawing.png
+    drawing.png = lambda figure: (drawn.append(figure), original(figure))[1]
+    with drawing.mpl.rc_context():
+        figures.figure_cumulative(drawing, written, 30)
+    figure = drawn[0]
+    renderer = figure.canvas.get_renderer()
+    axis = figure.axes[0]
+    legend = axis.get_legend().get_window_extent(renderer)
+    plot = axis.get_window_extent(renderer)
+    assert legend.y1 <= plot.y0, (legend, plot)
+    assert len(axis.get_legend().get_texts()) == 4
+    assert legend.y0 >= 0
+
+
+def test_annual_table_headings_name_a_budget_years_days():
+    """`year` is the calendar year a budget year starts in (README, budget year); a July-June
+    year's column was headed "2020" alone, which reads as January-December 2020 (review
+    round thirteen). The heading now gives its first and last day; a calendar year stays
+    a bare year."""
+    annual = pd.DataFrame({"nee": [-306.2, -286.1],
+                           "period_start": pd.to_datetime(["2020-07-01", "2021-07-01"]),
+                           "period_end": pd.to_datetime(["2021-07-01", "2022-07-01"])},
+                          index=pd.Index([2020, 2021], name="year"))
+    table = report._annual_table(annual, ["nee"], {"nee": ("g C m-2", "net")}, "t")
+    headings = re.findall(r'<th scope="col">(.*?)</th>', table)[3:]
+    assert [re.sub(r"<[^>]+>", " ", h).split() for h in headings] == [
+        ["2020", "01", "Jul", "2020", "–", "30", "Jun", "2021"],
+        ["2021", "01", "Jul", "2021", "–", "30", "Jun", "2022"]]
+    calendar = annual.assign(period_start=pd.to_datetime(["2020-01-01", "2021-01-01"]),
+                             period_end=pd.to_datetime(["2021-01-01", "2022-01-01"]))
+    table = report._annual_table(calendar, ["nee"], {"nee": ("g C m-2", "net")}, "t")
+    assert re.findall(r'<th scope="col">(.*?)</th>', table)[3:] == ["2020", "2021"]
+
+
 def test_fill_quality_codes_and_labels_agree():
     """Integer codes (0 measured, 1-3 A-C, -1 unfilled) and string labels read the same."""
     codes = fill_category(np.array([0, 1, 2, 3, -1], dtype=np.int8))
