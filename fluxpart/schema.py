@@ -97,8 +97,7 @@ _TIMESERIES = {
     "is_night": ("1", "night record: rg below night_rg_threshold (potential radiation 0 where "
                  "rg is missing)"),
     "rejection_reason": ("", f"screening outcome of the record's NEE: {_REASONS_TEXT}"),
-    "ustar_threshold": ("m s-1", "u* threshold applied to this record (its year's central value, "
-                        "or its season's own where the seasons clearly differ)"),
+    "ustar_threshold": ("m s-1", "u* threshold applied to this record (its year's central value)"),
     "nee_measured": (FLUX, "NEE of CO2 after screening and the u* filter: the values gap filling "
                      "and partitioning may use; positive = release"),
     "nee_filled": (FLUX, "gap-filled net ecosystem exchange of CO2 (measured where available); "
@@ -142,9 +141,8 @@ _BUDGET = {
     "share_filled_c": ("1", "share of records filled with quality C"),
     "share_unfilled": ("1", "share of records left unfilled"),
     "nee_share_from_filled": ("1", "share of the sum of |NEE| that came from filled records"),
-    "ustar_threshold": ("m s-1", "the year's u* threshold (the largest where a budget year spans "
-                        "two calendar years' thresholds; a season filtered at its own, "
-                        "higher threshold shows in the time series)"),
+    "ustar_threshold": ("m s-1", "u* threshold applied in the year (the largest where a budget "
+                        "year spans two calendar years' thresholds)"),
 }
 
 #: What the stated intervals do not contain (named in the column descriptions); the
