@@ -979,8 +979,12 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
     from .pipeline import process, process_site_config
 
     provenance = manifest["provenance"]
-    config = Config.from_mapping(manifest["config"], where="manifest config:")
+
+    def recorded_config() -> Config:
+        return Config.from_mapping(manifest["config"], where="manifest config:")
+
     if "demo" in provenance:
+        config = recorded_config()
         from . import demo
 
         recorded = provenance["demo"]
@@ -1015,8 +1019,11 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
         return "run", None, [changed]
     if provenance.get("settings") == "site config":
         # the settings came from the site config's [processing] table: rerun from it,
-        # so that a setting edited in the manifest is named as a differing field
+        # so that a setting edited in the manifest is named as a differing field (also
+        # one the manifest holds out of range, which is not read as settings at all)
         config = Config.from_toml(site_config)
+    else:
+        config = recorded_config()
     return "run", process_site_config(site_config, config, input_path=data_path), []
 
 
@@ -1172,12 +1179,14 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
         try:
             source, result, input_differences = _recompute(directory, manifest, input_path,
                                                            config_path, scratch, notes)
-        except InputFileError as error:
+        except FluxpartError as error:
             if not differences:
                 raise
             # the folder fails its own manifest (seal, a table's SHA-256, a file missing
             # or extra): that verdict needs no input, so a result folder handed on without
-            # its input is still found tampered (exit 1), not only asked for --input
+            # its input is still found tampered (exit 1), not only asked for --input; nor
+            # a manifest whose edited setting the rerun cannot take (despike_z = 50 was a
+            # ConfigError, exit 2, naming "[processing]", review round thirteen)
             return VerifyReport(directory=directory, identity=identity, source="none",
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(differences),

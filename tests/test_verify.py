@@ -749,3 +749,39 @@ def test_an_input_with_converted_line_endings_is_named_as_such(copy, capsys):
     assert main(["verify", str(copy / "out")]) == 0
     out = capsys.readouterr().out
     assert out.startswith("bit-identical") and "line endings); the recorded text was used" in out
+
+
+def test_a_manifest_with_a_repeated_key_is_refused_not_passed(copy, capsys):
+    """JSON (RFC 8259 section 4: names within an object SHOULD be unique; Python's
+    ``json`` keeps the last of a repeated name) let a second ``"despike_z": 9.0`` typed
+    above the written one through verify, diff and report unseen: the seal covers the
+    parsed content, so the folder verified bit-identical while its file showed a reader
+    another setting (review round thirteen). Now every reader of the folder refuses it,
+    one line naming the key."""
+    path = copy / "out" / "manifest.json"
+    text = path.read_text(encoding="utf-8")
+    assert '"despike_z": ' in text
+    path.write_text(text.replace('"despike_z": ', '"despike_z": 9.0,\n    "despike_z": ', 1),
+                    encoding="utf-8")
+    for argv in (["verify", str(copy / "out"), "--quiet"], ["diff", str(copy / "out"),
+                 str(copy / "out")], ["report", str(copy / "out"), "--quiet"]):
+        assert main(argv) == 2, argv
+        err = capsys.readouterr().err.strip().splitlines()
+        assert len(err) == 1 and "has the key 'despike_z' twice" in err[0], (argv, err)
+    assert not (copy / "out" / "report").exists()
+
+
+@pytest.mark.parametrize("reseal", [False, True])
+def test_a_manifest_setting_edited_out_of_range_is_not_reproduced(copy, reseal, capsys):
+    """A setting edited in the manifest to a value Config refuses (despike_z = 50, beyond
+    the 2..20 its check allows; the 4 of Papale et al. 2006 (m) written) was a ConfigError,
+    exit 2, naming "[processing]" of a site config that holds no such value (review round
+    thirteen). The folder fails its seal, or (resealed) the rerun from the site config gives
+    another value: NOT reproduced, exit 1, the field named where the rerun ran."""
+    _edit_manifest(copy / "out", lambda m: m["config"].update(despike_z=50.0), reseal=reseal)
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    if reseal:
+        assert "manifest field 'config.despike_z' differs: stored 50.0, recomputed 4.0" in out
+    else:
+        assert "manifest.json was edited after it was written" in out
