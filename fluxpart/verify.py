@@ -74,7 +74,7 @@ import numpy as np
 import pandas as pd
 
 from .config import Config
-from .errors import FluxpartError, InputFileError
+from .errors import FluxpartError, InputFileError, OutputError
 from .fingerprint import code_fingerprint, platform_differences, platform_record
 from .manifest import CAUTION, library_versions, read_manifest, recorded_path, without_paths
 from .resultdir import interrupted_writes
@@ -1198,7 +1198,17 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                                 differences=tuple(input_differences + differences),
                                 environment=tuple(environment), code_changed=code_changed,
                                 exact=exact, notes=tuple(notes))
-        again = result.write(scratch / "recomputed")
+        try:
+            again = result.write(scratch / "recomputed")
+        except OutputError as error:
+            # a full temporary folder or the file-size limit (ulimit -f): the message named
+            # the scratch folder as a "result folder" whose "earlier result" was unchanged
+            cause = getattr(error.__context__, "strerror", None) or str(error)
+            raise OutputError(f"verify: the rerun could not be written to a scratch folder "
+                              f"in {str(scratch.parent)!r} ({cause}); {str(directory)!r} is "
+                              "unchanged and not judged: free space in the temporary folder (or point "
+                              "TMPDIR at another), or raise the file-size limit (ulimit -f)"
+                              ) from None
         new_manifest = read_manifest(again)
         for found in _compare_manifests(manifest, new_manifest):
             if found.column in _NAME_FIELDS:

@@ -785,3 +785,28 @@ def test_a_manifest_setting_edited_out_of_range_is_not_reproduced(copy, reseal, 
         assert "manifest field 'config.despike_z' differs: stored 50.0, recomputed 4.0" in out
     else:
         assert "manifest.json was edited after it was written" in out
+
+
+def test_a_rerun_that_cannot_be_written_is_named_as_verify_s_own(bundle, tmp_path):
+    """Under a file-size limit (``ulimit -f``, setrlimit RLIMIT_FSIZE: a write beyond it
+    fails with EFBIG, POSIX) the rerun's scratch folder cannot be written. The message named
+    that scratch folder as "the result folder" whose "earlier result" was unchanged (review
+    round thirteen); it names verify's temporary folder, keeps the folder verified unjudged
+    (exit 2, not a verdict) and leaves no scratch behind."""
+    import resource
+
+    def small_files():
+        resource.setrlimit(resource.RLIMIT_FSIZE, (20_000, 20_000))
+
+    scratch_root = tmp_path / "tmp"
+    scratch_root.mkdir()
+    done = subprocess.run([sys.executable, "-m", "fluxpart", "verify", str(bundle / "out"),
+                           "--quiet"], preexec_fn=small_files, capture_output=True, text=True,
+                          timeout=300, env={**os.environ, "TMPDIR": str(scratch_root)})
+    lines = done.stderr.strip().splitlines()
+    assert done.returncode == 2, done.stderr[-2000:]
+    assert len(lines) == 1 and lines[0].startswith("error: verify: the rerun could not be "
+                                                   f"written to a scratch folder in "
+                                                   f"{str(scratch_root)!r} (File too large)")
+    assert "not judged" in lines[0] and done.stdout == ""
+    assert list(scratch_root.iterdir()) == []
