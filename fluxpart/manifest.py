@@ -306,7 +306,9 @@ def _read_manifest(directory: Path) -> dict:
         raise InputFileError(f"{str(path)!r} does not exist: {str(directory)!r} is not a "
                              f"fluxpart result folder{batch}")
     try:
-        manifest = json.loads(path.read_text(encoding="utf-8"), object_pairs_hook=_once_each)
+        # utf-8-sig: a byte-order mark an editor added on saving (Windows Notepad) is no
+        # content, as re-indenting is none; the seal covers the parsed content
+        manifest = json.loads(path.read_text(encoding="utf-8-sig"), object_pairs_hook=_once_each)
     except (json.JSONDecodeError, UnicodeDecodeError) as error:
         raise InputFileError(f"{str(path)!r} is not valid JSON: {error}") from None
     except _RepeatedKey as repeated:

@@ -406,7 +406,7 @@ def recorded_site_name(directory) -> str | None:
     damaged manifest does not protect its folder).
     """
     try:
-        manifest = json.loads((Path(directory) / MANIFEST_FILE).read_text(encoding="utf-8"))
+        manifest = json.loads((Path(directory) / MANIFEST_FILE).read_text(encoding="utf-8-sig"))
     except (OSError, UnicodeDecodeError, ValueError):
         return None
     site = manifest.get("site") if isinstance(manifest, dict) else None
@@ -496,7 +496,7 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
         return []
     if marker == MANIFEST_FILE:
         try:
-            manifest = json.loads((directory / MANIFEST_FILE).read_text(encoding="utf-8"))
+            manifest = json.loads((directory / MANIFEST_FILE).read_text(encoding="utf-8-sig"))
             tables = manifest.get("tables") if isinstance(manifest, dict) else None
             listed = {entry.get("file") for entry in tables.values() if isinstance(entry, dict)}
             listed |= {MANIFEST_FILE, RUN_LOG, REPORT_FOLDER}

@@ -810,3 +810,21 @@ def test_a_rerun_that_cannot_be_written_is_named_as_verify_s_own(bundle, tmp_pat
                                                    f"{str(scratch_root)!r} (File too large)")
     assert "not judged" in lines[0] and done.stdout == ""
     assert list(scratch_root.iterdir()) == []
+
+
+def test_a_manifest_resaved_with_a_byte_order_mark_still_verifies(copy, capsys):
+    """A byte-order mark (U+FEFF encoded as EF BB BF, the Unicode Standard's UTF-8 BOM) that
+    an editor adds on saving, with CR LF line ends and another indent, changes no content:
+    the seal covers the parsed manifest. The BOM alone made verify, diff and report exit 2
+    ("Unexpected UTF-8 BOM (decode using utf-8-sig)", review round thirteen), while the
+    re-indented file verified. A value edited beside it is still tampering."""
+    path = copy / "out" / "manifest.json"
+    text = json.dumps(json.loads(path.read_text(encoding="utf-8")), indent=4)
+    path.write_bytes(b"\xef\xbb\xbf" + text.replace("\n", "\r\n").encode("utf-8"))
+    assert main(["verify", str(copy / "out"), "--quiet"]) == 0
+    assert main(["diff", str(copy / "out"), str(copy / "out")]) == 0
+    capsys.readouterr()
+    path.write_bytes(b"\xef\xbb\xbf" + text.replace('"despike_z": 4.0', '"despike_z": 5.0')
+                     .encode("utf-8"))
+    assert main(["verify", str(copy / "out"), "--quiet"]) == 1
+    assert "manifest.json was edited after it was written" in capsys.readouterr().out
