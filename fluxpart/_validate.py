@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import re
 import tomllib
 from pathlib import Path
 
@@ -86,7 +87,14 @@ def read_toml(path, what: str) -> dict:
     except tomllib.TOMLDecodeError as error:
         hint = ""
         if str(error).startswith(("Cannot overwrite a value", "Cannot declare")):
-            hint = "; a setting or [table] is given twice there: keep one"
+            # the parser names the line, not the key: quote the line, so that the setting
+            # given twice is named (review round thirteen)
+            found = re.search(r"at line (\d+)", str(error))
+            lines = text.split("\n")
+            number = int(found[1]) if found else 0
+            quoted = (f" ({lines[number - 1].strip()[:80]!r})"
+                      if 0 < number <= len(lines) else "")
+            hint = f"; a setting or [table] is given twice there{quoted}: keep one"
         elif path.suffix.lower() in (".csv", ".dat", ".txt", ".tsv"):
             hint = (f"; {path.name} looks like a data file: give the site config (.toml), "
                     "whose [input] path names the data")

@@ -70,12 +70,17 @@ def test_unknown_key_suggests_nearest(tmp_path):
 
 
 @pytest.mark.parametrize(("text", "hint"), [
-    ("[processing]\nseed = 1\nseed = 2\n", "given twice there: keep one"),
-    ("[processing]\nseed = 1\n[processing]\nseed = 2\n", "given twice there: keep one"),
+    ("[processing]\nseed = 1\nseed = 2\n", r"given twice there \('seed = 2'\): keep one"),
+    ("[processing]\nseed = 1\n[processing]\nseed = 2\n",
+     r"given twice there \('\[processing\]'\): keep one"),
+    ("\ufeff[site]\r\nlatitude = 49.3\r\nlatitude = 49.4\r\n",
+     r"given twice there \('latitude = 49.4'\): keep one"),
 ])
 def test_twice_given_setting_or_table_is_named(tmp_path, text, hint):
     """A key or table written twice (TOML 1.0 forbids both) gets a plain hint after the
-    parser's line and column (fresh-eyes campaign: 'Cannot overwrite a value' alone)."""
+    parser's line and column (fresh-eyes campaign: 'Cannot overwrite a value' alone), quoting
+    the line, which names the key (review round thirteen; also after a byte-order mark and
+    with CR LF line ends)."""
     path = tmp_path / "site.toml"
     path.write_text(text, encoding="utf-8")
     with pytest.raises(ConfigError, match=rf"not valid TOML: .*line \d+.*{hint}"):
