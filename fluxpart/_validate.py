@@ -67,6 +67,11 @@ def read_toml(path, what: str) -> dict:
         If it is not valid TOML.
     """
     path = Path(path)
+    if path.exists() and not path.is_dir() and not path.is_file():
+        # a device or a named pipe: /dev/zero was read until memory ran out, a pipe
+        # without a writer waited for ever (review round thirteen)
+        raise InputFileError(f"{what} {str(path)!r} is not a regular file (a device or a "
+                             "named pipe): give the TOML file itself")
     try:
         data = path.read_bytes()
     except FileNotFoundError:

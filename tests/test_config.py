@@ -2,6 +2,8 @@
 
 import dataclasses
 import json
+import os
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -368,3 +370,17 @@ def test_numpy_scalars_are_accepted_as_plain_numbers():
     listed = Config(e0_bounds=[40.0, 300.0], ustar_scenarios=[16, 84])
     assert listed.e0_bounds == (40.0, 300.0) and listed.ustar_scenarios == (16, 84)
     assert hash(listed) == hash(Config(e0_bounds=(40.0, 300.0), ustar_scenarios=(16, 84)))
+
+
+@pytest.mark.skipif(not hasattr(os, "mkfifo"), reason="named pipes are POSIX")
+def test_a_site_config_that_is_a_pipe_or_a_device_is_refused_not_read(tmp_path):
+    """A named pipe (POSIX mkfifo) given as the site config waited for a writer for ever,
+    and /dev/zero (a character device, POSIX) was read until memory ran out (review round
+    thirteen): neither is a regular file, and neither is read."""
+    from fluxpart.io import read_site_config
+
+    pipe = tmp_path / "site.toml"
+    os.mkfifo(pipe)
+    for path in (pipe, Path(os.devnull)):
+        with pytest.raises(InputFileError, match="is not a regular file"):
+            read_site_config(path)
