@@ -534,7 +534,8 @@ def _too_long(error: OSError) -> str:
     """The message for a path the operating system refuses as too long (ENAMETOOLONG)."""
     name = str(error.filename or "")
     shown = name if len(name) <= 80 else f"{name[:50]}...{name[-25:]}"
-    return (f"the path {shown!r} ({len(name)} characters) is longer than this system allows "
+    named = f"the path {shown!r} ({len(name)} characters)" if name else "a path given"
+    return (f"{named} is longer than this system allows "
             f"({os.strerror(errno.ENAMETOOLONG)}: one name in it, or the whole path, beyond "
             "the file system's limit, usually 255 bytes a name); choose a shorter name")
 
