@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import re
 import tomllib
 from pathlib import Path
 
@@ -66,6 +67,11 @@ def read_toml(path, what: str) -> dict:
         If it is not valid TOML.
     """
     path = Path(path)
+    if path.exists() and not path.is_dir() and not path.is_file():
+        # a device or a named pipe: /dev/zero was read until memory ran out, a pipe
+        # without a writer waited for ever (review round thirteen)
+        raise InputFileError(f"{what} {str(path)!r} is not a regular file (a device or a "
+                             "named pipe): give the TOML file itself")
     try:
         data = path.read_bytes()
     except FileNotFoundError:
@@ -86,7 +92,14 @@ def read_toml(path, what: str) -> dict:
     except tomllib.TOMLDecodeError as error:
         hint = ""
         if str(error).startswith(("Cannot overwrite a value", "Cannot declare")):
-            hint = "; a setting or [table] is given twice there: keep one"
+            # the parser names the line, not the key: quote the line, so that the setting
+            # given twice is named (review round thirteen)
+            found = re.search(r"at line (\d+)", str(error))
+            lines = text.split("\n")
+            number = int(found[1]) if found else 0
+            quoted = (f" ({lines[number - 1].strip()[:80]!r})"
+                      if 0 < number <= len(lines) else "")
+            hint = f"; a setting or [table] is given twice there{quoted}: keep one"
         elif path.suffix.lower() in (".csv", ".dat", ".txt", ".tsv"):
             hint = (f"; {path.name} looks like a data file: give the site config (.toml), "
                     "whose [input] path names the data")

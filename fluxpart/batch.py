@@ -62,7 +62,14 @@ from ._validate import read_toml
 from .config import Config, suggest_key
 from .errors import ConfigError, FluxpartError, InputFileError, OutputError
 from .fingerprint import code_fingerprint
-from .manifest import CAUTION, MANIFEST_FILE, MANIFEST_FORMAT, library_versions, read_manifest
+from .manifest import (
+    CAUTION,
+    MANIFEST_FILE,
+    MANIFEST_FORMAT,
+    library_versions,
+    read_manifest,
+    seal_intact,
+)
 from .resultdir import check_folder, folder_lock
 from .schema import TIME_CONVENTION, units_for_table
 from .store import (
@@ -615,7 +622,12 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
         raise unreadable(path, error) from None
     except ValueError:
         seal = None
-    if not isinstance(seal, dict) or seal.get("complete") is not True:
+    if not isinstance(seal, dict):
+        # it said "network.json says so: a batch was stopped", of a file cut short or edited
+        raise InputFileError(f"{str(path)!r} is damaged (not the JSON object a batch writes: "
+                             f"cut short or edited), so the network tables in {str(out)!r} "
+                             f"cannot be checked; {rerun}")
+    if seal.get("complete") is not True:
         raise InputFileError(f"the network tables in {str(out)!r} are incomplete ({NETWORK_SEAL} "
                              f"says so: a batch was stopped while writing them); {rerun}")
     recorded = (seal.get("files") or {}).get(folder) or {}
@@ -629,7 +641,10 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
     for key, site in sorted((seal.get("sites") or {}).items()):
         site_folder = out / str(site.get("folder", key) if isinstance(site, dict) else key)
         try:
-            now = read_manifest(site_folder).get("seal")
+            manifest = read_manifest(site_folder)
+            # the seal recomputed, not only the recorded one: an edited manifest keeps its
+            # old "seal" entry, and passed (review round thirteen)
+            now = manifest.get("seal") if seal_intact(manifest) else None
         except InputFileError:
             now = None
         if not isinstance(site, dict) or now != site.get("seal"):

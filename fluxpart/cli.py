@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import datetime
+import errno
 import gc
 import os
 import signal
@@ -529,6 +530,16 @@ def _parse(argv):
     return args
 
 
+def _too_long(error: OSError) -> str:
+    """The message for a path the operating system refuses as too long (ENAMETOOLONG)."""
+    name = str(error.filename or "")
+    shown = name if len(name) <= 80 else f"{name[:50]}...{name[-25:]}"
+    named = f"the path {shown!r} ({len(name)} characters)" if name else "a path given"
+    return (f"{named} is longer than this system allows "
+            f"({os.strerror(errno.ENAMETOOLONG)}: one name in it, or the whole path, beyond "
+            "the file system's limit, usually 255 bytes a name); choose a shorter name")
+
+
 def main(argv=None) -> int:
     """Run the command line; return the exit status.
 
@@ -575,6 +586,14 @@ def main(argv=None) -> int:
     except BrokenPipeError:          # output piped into e.g. `head`, which closed early
         sys.stderr.close()
         return 0
+    except OSError as error:
+        if error.errno != errno.ENAMETOOLONG:
+            raise
+        # a path given on the command line (or a name derived from it) longer than the
+        # file system allows: pathlib's exists() and is_file() raise this one instead of
+        # answering False (Python 3.11), deep inside every command's checks
+        print(f"error: {_too_long(error)}", file=sys.stderr)
+        return 2
     finally:
         sys.stdout = stdout
         if on_term is not None:

@@ -1281,7 +1281,12 @@ def _file_sha256(path: Path) -> str:
 
 def _require_input_file(path: Path) -> None:
     """Raise `InputFileError` naming ``[input] path`` unless `path` is an existing file."""
-    if not path.exists():
+    try:
+        exists = path.exists()
+    except OSError as error:    # a name beyond the file system's limit (ENAMETOOLONG)
+        raise InputFileError(f"[input] path: input file {str(path)[:80]!r}... cannot be "
+                             f"looked up: {error.strerror or error}") from None
+    if not exists:
         hint = ("; write the path with forward slashes ('/'), which work on every system: "
                 "a backslash is part of the file name outside Windows" if "\\" in str(path)
                 else _case_hint(path))

@@ -275,6 +275,20 @@ def _nearby_result(directory: Path) -> str:
     return ""
 
 
+class _RepeatedKey(ValueError):
+    """A key given twice in one JSON object of a manifest."""
+
+
+def _once_each(pairs: list) -> dict:
+    """``object_pairs_hook`` of :func:`json.loads`: the object, refusing a repeated key."""
+    seen = {}
+    for key, value in pairs:
+        if key in seen:
+            raise _RepeatedKey(key)
+        seen[key] = value
+    return seen
+
+
 def _read_manifest(directory: Path) -> dict:
     path = directory / MANIFEST_FILE
     if not Path(directory).exists():
@@ -292,9 +306,18 @@ def _read_manifest(directory: Path) -> dict:
         raise InputFileError(f"{str(path)!r} does not exist: {str(directory)!r} is not a "
                              f"fluxpart result folder{batch}")
     try:
-        manifest = json.loads(path.read_text(encoding="utf-8"))
+        # utf-8-sig: a byte-order mark an editor added on saving (Windows Notepad) is no
+        # content, as re-indenting is none; the seal covers the parsed content
+        manifest = json.loads(path.read_text(encoding="utf-8-sig"), object_pairs_hook=_once_each)
     except (json.JSONDecodeError, UnicodeDecodeError) as error:
         raise InputFileError(f"{str(path)!r} is not valid JSON: {error}") from None
+    except _RepeatedKey as repeated:
+        # JSON readers keep the last of a repeated key and drop the others unseen, so a
+        # second "despike_z" or "sha256" typed above the written one showed a reader of
+        # the file a value that no check compared (the seal covers the parsed content)
+        raise InputFileError(f"{str(path)!r} has the key {repeated.args[0]!r} twice in one "
+                             "object: fluxpart writes each key once, so the file was edited "
+                             "after it was written; use the manifest as written") from None
     if not isinstance(manifest, dict):
         raise InputFileError(f"{str(path)!r} is not a fluxpart manifest (not a JSON object)")
     return manifest

@@ -939,6 +939,8 @@ def build_report(directory, out=None, *, progress=None) -> Path:
     except OSError as error:        # a read-only medium, no permission, a full disk
         remedy = ("free space, or give --out a writable folder"
                   if error.errno in (errno.ENOSPC, errno.EDQUOT)
+                  else "raise the file-size limit (ulimit -f), or give --out a folder on "
+                  "another file system" if error.errno == errno.EFBIG
                   else "give --out a writable folder (e.g. --out ~/report)")
         raise OutputError(f"the report folder {str(out)!r} cannot be written "
                           f"({error.strerror or error}); the earlier report, if any, is "

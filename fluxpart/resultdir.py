@@ -406,7 +406,7 @@ def recorded_site_name(directory) -> str | None:
     damaged manifest does not protect its folder).
     """
     try:
-        manifest = json.loads((Path(directory) / MANIFEST_FILE).read_text(encoding="utf-8"))
+        manifest = json.loads((Path(directory) / MANIFEST_FILE).read_text(encoding="utf-8-sig"))
     except (OSError, UnicodeDecodeError, ValueError):
         return None
     site = manifest.get("site") if isinstance(manifest, dict) else None
@@ -482,24 +482,43 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
     """Entries of the folder `directory` that a writer of its kind did not write, sorted.
 
     A result folder (`marker` ``manifest.json``): what its manifest does not list (it
-    lists its tables, the run log and the ``report/`` folder). A report folder: what is
-    neither `marker` nor a ``.png`` figure. Hidden entries (a file manager's
-    ``.DS_Store``, an interrupted writer's staging) are not counted, nor is anything
-    where the manifest cannot be read: a damaged manifest does not protect its folder
-    (as :func:`recorded_site_name`).
+    lists its tables, the run log and the ``report/`` folder); where the manifest cannot
+    be read (truncated, edited), what has no name a run writes (:func:`_run_writes`), so
+    a damaged manifest lets its own folder be rewritten but not the files a user put
+    beside it (a truncated manifest let ``run --out`` delete an input file and notes
+    moved into the folder, review round thirteen). A report folder: what is neither
+    `marker` nor a ``.png`` figure. Hidden entries (a file manager's ``.DS_Store``, an
+    interrupted writer's staging) are not counted.
     """
     try:
         names = sorted(path.name for path in directory.iterdir())
-        if marker == MANIFEST_FILE:
-            manifest = json.loads((directory / MANIFEST_FILE).read_text(encoding="utf-8"))
+    except OSError:
+        return []
+    if marker == MANIFEST_FILE:
+        try:
+            manifest = json.loads((directory / MANIFEST_FILE).read_text(encoding="utf-8-sig"))
             tables = manifest.get("tables") if isinstance(manifest, dict) else None
             listed = {entry.get("file") for entry in tables.values() if isinstance(entry, dict)}
             listed |= {MANIFEST_FILE, RUN_LOG, REPORT_FOLDER}
-        else:
-            listed = {marker} | {name for name in names if name.endswith(".png")}
-    except (OSError, UnicodeDecodeError, ValueError, AttributeError):
-        return []
+        except (OSError, UnicodeDecodeError, ValueError, AttributeError):
+            listed = {name for name in names if _run_writes(name)}
+    else:
+        listed = {marker} | {name for name in names if name.endswith(".png")}
     return [name for name in names if name not in listed and not name.startswith(".")]
+
+
+#: The tables of a result folder other than the ``parameters_*`` ones.
+_RESULT_TABLES = ("timeseries", "daily", "monthly", "annual", "audit", "screening", "ustar")
+
+
+def _run_writes(name: str) -> bool:
+    """Whether `name` is one a run writes into a result folder: its manifest, run log,
+    ``report/`` folder, or one of its tables (``parameters_*.parquet`` included)."""
+    if name in (MANIFEST_FILE, RUN_LOG, REPORT_FOLDER):
+        return True
+    stem, dot, suffix = name.rpartition(".")
+    return bool(dot) and suffix == "parquet" and (stem in _RESULT_TABLES
+                                                  or stem.startswith("parameters_"))
 
 
 def _write_protected(directory: Path) -> Path | None:

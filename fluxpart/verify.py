@@ -74,7 +74,7 @@ import numpy as np
 import pandas as pd
 
 from .config import Config
-from .errors import FluxpartError, InputFileError
+from .errors import FluxpartError, InputFileError, OutputError
 from .fingerprint import code_fingerprint, platform_differences, platform_record
 from .manifest import CAUTION, library_versions, read_manifest, recorded_path, without_paths
 from .resultdir import interrupted_writes
@@ -979,8 +979,12 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
     from .pipeline import process, process_site_config
 
     provenance = manifest["provenance"]
-    config = Config.from_mapping(manifest["config"], where="manifest config:")
+
+    def recorded_config() -> Config:
+        return Config.from_mapping(manifest["config"], where="manifest config:")
+
     if "demo" in provenance:
+        config = recorded_config()
         from . import demo
 
         recorded = provenance["demo"]
@@ -1015,8 +1019,11 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
         return "run", None, [changed]
     if provenance.get("settings") == "site config":
         # the settings came from the site config's [processing] table: rerun from it,
-        # so that a setting edited in the manifest is named as a differing field
+        # so that a setting edited in the manifest is named as a differing field (also
+        # one the manifest holds out of range, which is not read as settings at all)
         config = Config.from_toml(site_config)
+    else:
+        config = recorded_config()
     return "run", process_site_config(site_config, config, input_path=data_path), []
 
 
@@ -1172,12 +1179,14 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
         try:
             source, result, input_differences = _recompute(directory, manifest, input_path,
                                                            config_path, scratch, notes)
-        except InputFileError as error:
+        except FluxpartError as error:
             if not differences:
                 raise
             # the folder fails its own manifest (seal, a table's SHA-256, a file missing
             # or extra): that verdict needs no input, so a result folder handed on without
-            # its input is still found tampered (exit 1), not only asked for --input
+            # its input is still found tampered (exit 1), not only asked for --input; nor
+            # a manifest whose edited setting the rerun cannot take (despike_z = 50 was a
+            # ConfigError, exit 2, naming "[processing]", review round thirteen)
             return VerifyReport(directory=directory, identity=identity, source="none",
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(differences),
@@ -1189,7 +1198,17 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                                 differences=tuple(input_differences + differences),
                                 environment=tuple(environment), code_changed=code_changed,
                                 exact=exact, notes=tuple(notes))
-        again = result.write(scratch / "recomputed")
+        try:
+            again = result.write(scratch / "recomputed")
+        except OutputError as error:
+            # a full temporary folder or the file-size limit (ulimit -f): the message named
+            # the scratch folder as a "result folder" whose "earlier result" was unchanged
+            cause = getattr(error.__context__, "strerror", None) or str(error)
+            raise OutputError(f"verify: the rerun could not be written to a scratch folder "
+                              f"in {str(scratch.parent)!r} ({cause}); {str(directory)!r} is "
+                              "unchanged and not judged: free space in the temporary folder (or point "
+                              "TMPDIR at another), or raise the file-size limit (ulimit -f)"
+                              ) from None
         new_manifest = read_manifest(again)
         for found in _compare_manifests(manifest, new_manifest):
             if found.column in _NAME_FIELDS:

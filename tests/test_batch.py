@@ -671,7 +671,21 @@ def test_network_tables_are_read_only_when_they_match_their_seal(towers, tmp_pat
     manifest.write_text(json.dumps(edited), encoding="utf-8")
     with pytest.raises(InputFileError, match="tower1' changed after the network tables"):
         batch.read_network(out, "monthly")
+    # a value edited in a site's manifest, its recorded seal left as it was: the seal no
+    # longer matches the content (SHA-256 of the canonical JSON), which passed (review
+    # round thirteen: only the "seal" entry was compared)
+    edited = json.loads(saved)
+    edited["site"]["latitude"] = -edited["site"]["latitude"]
+    manifest.write_text(json.dumps(edited), encoding="utf-8")
+    with pytest.raises(InputFileError, match="tower1' changed after the network tables"):
+        batch.read_network(out, "monthly")
     manifest.write_bytes(saved)
+    # network.json cut short (a copy stopped mid-file): named as damaged, not as a seal
+    # that "says so" of a stopped batch
+    (out / batch.NETWORK_SEAL).write_bytes(intact[:100])
+    with pytest.raises(InputFileError, match="network.json' is damaged .*run the batch again"):
+        batch.read_network(out, "annual")
+    (out / batch.NETWORK_SEAL).write_bytes(intact)
     batch.run_batch(sites, scheduler=cluster.scheduler_address)
     assert (out / batch.NETWORK_SEAL).read_bytes() == intact          # rerun: the same seal
     pd.testing.assert_frame_equal(batch.read_network(out, "daily"), daily)

@@ -2,6 +2,8 @@
 
 import dataclasses
 import json
+import os
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -70,12 +72,17 @@ def test_unknown_key_suggests_nearest(tmp_path):
 
 
 @pytest.mark.parametrize(("text", "hint"), [
-    ("[processing]\nseed = 1\nseed = 2\n", "given twice there: keep one"),
-    ("[processing]\nseed = 1\n[processing]\nseed = 2\n", "given twice there: keep one"),
+    ("[processing]\nseed = 1\nseed = 2\n", r"given twice there \('seed = 2'\): keep one"),
+    ("[processing]\nseed = 1\n[processing]\nseed = 2\n",
+     r"given twice there \('\[processing\]'\): keep one"),
+    ("\ufeff[site]\r\nlatitude = 49.3\r\nlatitude = 49.4\r\n",
+     r"given twice there \('latitude = 49.4'\): keep one"),
 ])
 def test_twice_given_setting_or_table_is_named(tmp_path, text, hint):
     """A key or table written twice (TOML 1.0 forbids both) gets a plain hint after the
-    parser's line and column (fresh-eyes campaign: 'Cannot overwrite a value' alone)."""
+    parser's line and column (fresh-eyes campaign: 'Cannot overwrite a value' alone), quoting
+    the line, which names the key (review round thirteen; also after a byte-order mark and
+    with CR LF line ends)."""
     path = tmp_path / "site.toml"
     path.write_text(text, encoding="utf-8")
     with pytest.raises(ConfigError, match=rf"not valid TOML: .*line \d+.*{hint}"):
@@ -363,3 +370,17 @@ def test_numpy_scalars_are_accepted_as_plain_numbers():
     listed = Config(e0_bounds=[40.0, 300.0], ustar_scenarios=[16, 84])
     assert listed.e0_bounds == (40.0, 300.0) and listed.ustar_scenarios == (16, 84)
     assert hash(listed) == hash(Config(e0_bounds=(40.0, 300.0), ustar_scenarios=(16, 84)))
+
+
+@pytest.mark.skipif(not hasattr(os, "mkfifo"), reason="named pipes are POSIX")
+def test_a_site_config_that_is_a_pipe_or_a_device_is_refused_not_read(tmp_path):
+    """A named pipe (POSIX mkfifo) given as the site config waited for a writer for ever,
+    and /dev/zero (a character device, POSIX) was read until memory ran out (review round
+    thirteen): neither is a regular file, and neither is read."""
+    from fluxpart.io import read_site_config
+
+    pipe = tmp_path / "site.toml"
+    os.mkfifo(pipe)
+    for path in (pipe, Path(os.devnull)):
+        with pytest.raises(InputFileError, match="is not a regular file"):
+            read_site_config(path)

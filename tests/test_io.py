@@ -543,6 +543,11 @@ def test_input_file_missing(tmp_path):
     """A missing record file names the path and the setting."""
     with pytest.raises(InputFileError, match=r"\[input\] path.*nothing.csv.*does not exist"):
         _read(tmp_path / "nothing.csv")
+    # a name of 300 bytes, beyond NAME_MAX (255 bytes on Linux ext4/tmpfs, macOS APFS;
+    # common practice): pathlib's exists() raised OSError ENAMETOOLONG, a traceback under
+    # `fluxpart batch` (review round thirteen)
+    with pytest.raises(InputFileError, match=r"\[input\] path.*cannot be looked up"):
+        _read(tmp_path / ("a" * 300 + ".csv"))
     _site_toml(tmp_path)
     with pytest.raises(InputFileError, match="tower.csv"):
         read_config(tmp_path / "site.toml")

@@ -1026,3 +1026,24 @@ def test_report_out_inside_its_report_folder_leaves_no_lock_file_there(folder, t
     assert main(["report", str(directory), "--out", str(directory / "report"), "--quiet"]) == 0
     assert seen == [directory]
     fluxpart.load(directory)
+
+
+def test_a_report_beyond_the_file_size_limit_names_that_limit(written_demo, tmp_path):
+    """A page beyond the file-size limit (``ulimit -f``; a write past RLIMIT_FSIZE fails with
+    EFBIG, "File too large", POSIX) was told to "give --out a writable folder", which it
+    had (review round thirteen): the remedy names the limit. One line, exit 2, no folder."""
+    import resource
+
+    _, folder = written_demo
+
+    def small_files():
+        resource.setrlimit(resource.RLIMIT_FSIZE, (20_000, 20_000))
+
+    done = subprocess.run([sys.executable, "-m", "fluxpart", "report", str(folder), "--out",
+                           str(tmp_path / "page"), "--quiet"], preexec_fn=small_files,
+                          capture_output=True, text=True, timeout=300)
+    lines = done.stderr.strip().splitlines()
+    assert done.returncode == 2, done.stderr[-2000:]
+    assert len(lines) == 1 and "(File too large)" in lines[0]
+    assert "raise the file-size limit (ulimit -f)" in lines[0]
+    assert list(tmp_path.iterdir()) == []

@@ -578,3 +578,29 @@ def test_a_folder_with_another_programs_manifest_is_named_as_not_a_result(tmp_pa
                        r"\(it has no seal, format or tables\): the folder is not a fluxpart "
                        r"result folder$"):
         fluxpart.load(tmp_path)
+
+
+def test_a_damaged_manifest_protects_the_files_a_user_put_beside_it(short_result, tmp_path):
+    """A result folder whose manifest.json was cut short (a copy stopped mid-file), holding
+    an input file and notes moved into it: `run --out` into it replaced the folder whole
+    and deleted both (review round thirteen), although a folder holding files its manifest
+    does not list is refused (README "Output folder"). Where the manifest cannot be read,
+    the names a run writes stand in for its list: the user's files refuse the write, and
+    without them the damaged folder is rewritten whole, as before."""
+    out = tmp_path / "out"
+    short_result.write(out)
+    manifest = out / "manifest.json"
+    manifest.write_bytes(manifest.read_bytes()[:500])
+    (out / "tower.csv").write_text("stamp,nee\n")
+    (out / "notes.txt").write_text("keep me")
+    with pytest.raises(OutputError, match="holds 'notes.txt', 'tower.csv', which fluxpart "
+                                          "did not write there"):
+        short_result.write(out)
+    assert (out / "notes.txt").read_text() == "keep me"
+    assert (out / "tower.csv").read_text() == "stamp,nee\n"
+    assert manifest.stat().st_size == 500 and _leftovers(out) == []
+    (out / "tower.csv").unlink()
+    (out / "notes.txt").unlink()
+    short_result.write(out)
+    assert read_folder(out)[0]["tables"] == read_folder(short_result.write(tmp_path / "b"))[0][
+        "tables"]

@@ -259,3 +259,27 @@ def test_run_with_a_missing_input_file_is_one_error_line(tmp_path, capsys):
     assert status == 2
     assert len(err) == 1 and err[0].startswith("error: [input] path") and "does not exist" in err[0]
     assert not (tmp_path / "out").exists()
+
+
+def test_a_name_longer_than_the_system_allows_is_one_error_line(tmp_path, capsys):
+    """A path with one name of 300 bytes, beyond NAME_MAX (255 bytes on Linux ext4, XFS,
+    tmpfs and on macOS APFS; common practice), made pathlib's exists()/is_file() raise
+    OSError ENAMETOOLONG inside the output and folder checks of run, report, export,
+    verify and diff: a traceback (review round thirteen). Contract (README "Command
+    line"): one `error:` line naming the path, exit 2, nothing written."""
+    long = tmp_path / ("a" * 300)
+    config = tmp_path / "site.toml"
+    config.write_text("[site]\n")
+    folder = _result_folder(tmp_path / "out")
+    for argv in (["run", str(config), "--out", str(long), "--quiet"],
+                 ["report", str(folder), "--out", str(long), "--quiet"],
+                 ["export", str(folder), "--netcdf", f"{long}.nc"],
+                 ["verify", str(long), "--quiet"],
+                 ["diff", str(long), str(folder)],
+                 ["report", str(long), "--quiet"]):
+        status = main(argv)
+        err = capsys.readouterr().err.strip().splitlines()
+        assert status == 2, argv
+        assert len(err) == 1 and err[0].startswith("error: the path '"), (argv, err)
+        assert "longer than this system allows" in err[0] and "aaaa" in err[0], (argv, err)
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["out", "site.toml"]

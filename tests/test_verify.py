@@ -749,3 +749,82 @@ def test_an_input_with_converted_line_endings_is_named_as_such(copy, capsys):
     assert main(["verify", str(copy / "out")]) == 0
     out = capsys.readouterr().out
     assert out.startswith("bit-identical") and "line endings); the recorded text was used" in out
+
+
+def test_a_manifest_with_a_repeated_key_is_refused_not_passed(copy, capsys):
+    """JSON (RFC 8259 section 4: names within an object SHOULD be unique; Python's
+    ``json`` keeps the last of a repeated name) let a second ``"despike_z": 9.0`` typed
+    above the written one through verify, diff and report unseen: the seal covers the
+    parsed content, so the folder verified bit-identical while its file showed a reader
+    another setting (review round thirteen). Now every reader of the folder refuses it,
+    one line naming the key."""
+    path = copy / "out" / "manifest.json"
+    text = path.read_text(encoding="utf-8")
+    assert '"despike_z": ' in text
+    path.write_text(text.replace('"despike_z": ', '"despike_z": 9.0,\n    "despike_z": ', 1),
+                    encoding="utf-8")
+    for argv in (["verify", str(copy / "out"), "--quiet"], ["diff", str(copy / "out"),
+                 str(copy / "out")], ["report", str(copy / "out"), "--quiet"]):
+        assert main(argv) == 2, argv
+        err = capsys.readouterr().err.strip().splitlines()
+        assert len(err) == 1 and "has the key 'despike_z' twice" in err[0], (argv, err)
+    assert not (copy / "out" / "report").exists()
+
+
+@pytest.mark.parametrize("reseal", [False, True])
+def test_a_manifest_setting_edited_out_of_range_is_not_reproduced(copy, reseal, capsys):
+    """A setting edited in the manifest to a value Config refuses (despike_z = 50, beyond
+    the 2..20 its check allows; the 4 of Papale et al. 2006 (m) written) was a ConfigError,
+    exit 2, naming "[processing]" of a site config that holds no such value (review round
+    thirteen). The folder fails its seal, or (resealed) the rerun from the site config gives
+    another value: NOT reproduced, exit 1, the field named where the rerun ran."""
+    _edit_manifest(copy / "out", lambda m: m["config"].update(despike_z=50.0), reseal=reseal)
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    if reseal:
+        assert "manifest field 'config.despike_z' differs: stored 50.0, recomputed 4.0" in out
+    else:
+        assert "manifest.json was edited after it was written" in out
+
+
+def test_a_rerun_that_cannot_be_written_is_named_as_verify_s_own(bundle, tmp_path):
+    """Under a file-size limit (``ulimit -f``, setrlimit RLIMIT_FSIZE: a write beyond it
+    fails with EFBIG, POSIX) the rerun's scratch folder cannot be written. The message named
+    that scratch folder as "the result folder" whose "earlier result" was unchanged (review
+    round thirteen); it names verify's temporary folder, keeps the folder verified unjudged
+    (exit 2, not a verdict) and leaves no scratch behind."""
+    import resource
+
+    def small_files():
+        resource.setrlimit(resource.RLIMIT_FSIZE, (20_000, 20_000))
+
+    scratch_root = tmp_path / "tmp"
+    scratch_root.mkdir()
+    done = subprocess.run([sys.executable, "-m", "fluxpart", "verify", str(bundle / "out"),
+                           "--quiet"], preexec_fn=small_files, capture_output=True, text=True,
+                          timeout=300, env={**os.environ, "TMPDIR": str(scratch_root)})
+    lines = done.stderr.strip().splitlines()
+    assert done.returncode == 2, done.stderr[-2000:]
+    assert len(lines) == 1 and lines[0].startswith("error: verify: the rerun could not be "
+                                                   f"written to a scratch folder in "
+                                                   f"{str(scratch_root)!r} (File too large)")
+    assert "not judged" in lines[0] and done.stdout == ""
+    assert list(scratch_root.iterdir()) == []
+
+
+def test_a_manifest_resaved_with_a_byte_order_mark_still_verifies(copy, capsys):
+    """A byte-order mark (U+FEFF encoded as EF BB BF, the Unicode Standard's UTF-8 BOM) that
+    an editor adds on saving, with CR LF line ends and another indent, changes no content:
+    the seal covers the parsed manifest. The BOM alone made verify, diff and report exit 2
+    ("Unexpected UTF-8 BOM (decode using utf-8-sig)", review round thirteen), while the
+    re-indented file verified. A value edited beside it is still tampering."""
+    path = copy / "out" / "manifest.json"
+    text = json.dumps(json.loads(path.read_text(encoding="utf-8")), indent=4)
+    path.write_bytes(b"\xef\xbb\xbf" + text.replace("\n", "\r\n").encode("utf-8"))
+    assert main(["verify", str(copy / "out"), "--quiet"]) == 0
+    assert main(["diff", str(copy / "out"), str(copy / "out")]) == 0
+    capsys.readouterr()
+    path.write_bytes(b"\xef\xbb\xbf" + text.replace('"despike_z": 4.0', '"despike_z": 5.0')
+                     .encode("utf-8"))
+    assert main(["verify", str(copy / "out"), "--quiet"]) == 1
+    assert "manifest.json was edited after it was written" in capsys.readouterr().out
