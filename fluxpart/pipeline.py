@@ -738,14 +738,19 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     counts[screening.REASON_CODES[0]] = int((reason == 0).sum())
     for year, row in annual.iterrows():
         if not row["complete"]:
+            key = year
             if config.year_start != "01-01":
                 last = row["period_end"] - pd.Timedelta(days=1)
                 year = f"budget year {year} ({row['period_start']:%Y-%m-%d} to {last:%Y-%m-%d})"
-            months = 12.0 * row["records"] / row["records_expected"]
-            warnings.append(f"{year} is a partial or not fully filled year "
-                            f"({int(row['records'])} of {int(row['records_expected'])} records, "
-                            f"{months:.1f} months): its sums are not annual totals and are not "
-                            "scaled up")
+            if row["records"] < row["records_expected"]:
+                months = 12.0 * row["records"] / row["records_expected"]
+                warnings.append(f"{year} is a partial year ({int(row['records'])} of "
+                                f"{int(row['records_expected'])} records, {months:.1f} months): "
+                                "its sums are not annual totals and are not scaled up")
+            if row["records_unfilled"] > 0:
+                warnings.append(_unfilled_warning(year, row, annual, timeseries,
+                                                  np.asarray(year_keys) == key,
+                                                  config))
     for text in warnings:
         _warnings.warn(text, FluxpartWarning, stacklevel=2)
     facts = schema.file_metadata(site, interval)
@@ -772,6 +777,29 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                     "uncertainty": {"confidence": uncertainty.CONFIDENCE,
                                     "not_quantified": list(uncertainty.NOT_QUANTIFIED),
                                     "checked": uncertainty.CALIBRATION_CHECK}})
+
+
+def _unfilled_warning(year, row, annual, timeseries, in_year, config) -> str:
+    """Name the NEE records of a budget year that gap filling left unfilled, and the NaN sums.
+
+    A year with unfilled records holds every record but no total: its NEE sum, and each sum
+    resting on an unfilled record, is NaN (:func:`fluxpart.budget.aggregate`).
+    """
+    unfilled = in_year & ~np.isfinite(timeseries["nee_filled"].to_numpy(dtype=float))
+    stamps = timeseries.index[unfilled]
+    span = (f", {stamps[0]:%Y-%m-%d %H:%M} .. {stamps[-1]:%Y-%m-%d %H:%M} (interval starts)"
+            if stamps.size else "")
+    fluxes = [name for name in _BUDGET_FLUXES.values()
+              if name in annual.columns and pd.isna(row[name])]
+    sums = (f"its sums of {', '.join(fluxes)} are NaN, not totals" if fluxes
+            else "its sums are not annual totals")
+    return (f"{year}: {int(row['records_unfilled'])} records "
+            f"({row['records_unfilled'] / row['records_expected']:.1%}) of NEE stay unfilled"
+            f"{span}: gap filling found fewer than gapfill_min_donors = {config.gapfill_min_donors} "
+            "similar measured records within gapfill_max_window_days = "
+            f"{config.gapfill_max_window_days:g} days of them, or their drivers are missing; "
+            f"{sums} "
+            "(records_unfilled in annual.parquet)")
 
 
 def _threshold_runs(arguments, runs, temperature, config, night_fit, delay, warnings, step):

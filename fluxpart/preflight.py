@@ -38,6 +38,8 @@ a day or more of records repeating        input (repeated records)            no
 earlier ones in every variable
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
+u* missing at more than 10 % of the       u* filter (those nights rejected)   no
+night records with measured NEE
 Rg above the night threshold in most      night mask                          where the
 records with the sun down                                                     nighttime
                                                                               stages fail
@@ -55,7 +57,7 @@ from .gapfill import QUALITY_A_WINDOW_DAYS
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
 
-__all__ = ["Finding", "RG_ABOVE_POTENTIAL_SHARE", "preflight"]
+__all__ = ["Finding", "MISSING_USTAR_SHARE", "RG_ABOVE_POTENTIAL_SHARE", "preflight"]
 
 #: Share of sunlit records whose Rg exceeds the potential radiation (beyond the
 #: screening margins) above which the screen's rejections are reported as clock or
@@ -63,6 +65,12 @@ __all__ = ["Finding", "RG_ABOVE_POTENTIAL_SHARE", "preflight"]
 #: enhancement at the margins reaches it, which is rare; a clock an hour off puts
 #: a quarter of the sunlit records there.
 RG_ABOVE_POTENTIAL_SHARE = 0.01
+
+#: Share of the night records with measured NEE that lack u* above which the loss is
+#: reported [1]; 10 %, our choice: short u* dropouts (a sonic's rain gaps) are routine,
+#: while a tenth of the nights lost to a missing column is a change of the budget's
+#: evidence a user should hear of.
+MISSING_USTAR_SHARE = 0.10
 
 # variable -> (stage it feeds, whether a constant series stops the run)
 _CONSTANT = {
@@ -433,14 +441,38 @@ def _e0(days, index, usable, temperature, config) -> list:
     return findings
 
 
-def _rref(days, usable, config) -> list:
+def _rref(days, usable, config, without_ustar: int = 0) -> list:
     counts, _, _, _ = _window_counts(days, usable, config.rref_window_days,
                                      config.rref_window_days)
     if (counts >= config.rref_min_points).any():
         return []
+    lost = (f", and {without_ustar} more without u*, which the u* filter rejects"
+            if without_ustar else "")
     return [Finding("nighttime partitioning (Rref)", (
         f"no {config.rref_window_days:g}-day window has {config.rref_min_points} measured night "
-        f"records ({int(usable.sum())} in all); supply measured night NEE"), True)]
+        f"records ({int(usable.sum())} in all{lost}); supply measured night NEE"
+        + (" and its u*" if without_ustar else "")), True)]
+
+
+def _missing_ustar(index: pd.DatetimeIndex, night_measured: np.ndarray,
+                   ustar: np.ndarray) -> list:
+    """Night records with measured NEE but no u*: the u* filter rejects every one.
+
+    Without u* a night's turbulence cannot be shown to be sufficient, so
+    :func:`fluxpart.screening.ustar_filter` rejects the flux (common practice) and the
+    night is gap-filled from other nights. A u* column missing for months thus removes
+    those months' night data without any other note.
+    """
+    measured = int(night_measured.sum())
+    without = night_measured & ~np.isfinite(ustar)
+    if measured == 0 or without.sum() <= MISSING_USTAR_SHARE * measured:
+        return []
+    stamps = index[without]
+    return [Finding("u* filter", (
+        f"u* is missing at {int(without.sum())} of the {measured} night records with measured "
+        f"NEE ({without.sum() / measured:.0%}; {stamps[0]:%Y-%m-%d} .. {stamps[-1]:%Y-%m-%d}): "
+        "without u* a night's turbulence cannot be shown, so these nights are rejected and "
+        "filled from other nights; check the u* column's mapping and missing codes"), False)]
 
 
 def _daytime(days, usable_day, config) -> list:
@@ -555,6 +587,10 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
                    else fallback_years)
     with np.errstate(invalid="ignore"):
         too_calm = np.isin(index.year, list(fixed_years)) & ~(ustar >= config.ustar_threshold)
+    night_measured = usable_night
+    # nights the u* filter rejects for want of u* (counted where the filter is known)
+    without_ustar = int((night_measured & np.isin(index.year, list(fixed_years))
+                         & ~np.isfinite(ustar)).sum())
     usable_night = usable_night & ~too_calm
     span_days = (index[-1] - index[0]) / pd.Timedelta(days=1) + interval_minutes / 1440.0
     if span_days < config.e0_window_days:
@@ -567,7 +603,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
             not fallback))
     else:
         findings += _e0(days, index, usable_night, temperature, config)
-    findings += _rref(days, usable_night, config)
+    findings += _rref(days, usable_night, config, without_ustar)
     rg = frame["rg"].to_numpy(dtype=float) if "rg" in frame.columns else np.full(len(index),
                                                                                  np.nan)
     potential = np.asarray(potential, dtype=float)
@@ -575,6 +611,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         sunlit = rg > 0                   # measured sunlight (gaps in Rg count as none)
     findings += _daytime(days, np.isfinite(nee) & ~is_night & sunlit, config)
     findings += _long_gaps(index, nee, interval_minutes)
+    findings += _missing_ustar(index, night_measured, ustar)
     findings += ustar_findings
     if span_days < 365.0:
         findings.append(Finding("annual budget", (

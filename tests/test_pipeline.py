@@ -441,3 +441,22 @@ def test_screening_summary_lists_no_reason_it_cannot_decide():
                                                     Config(ustar_bootstrap_draws=0))
     assert "low_ustar" not in counts.index and "morning_release" not in counts.index
     assert int(counts.sum()) == len(frame)
+
+
+def test_a_year_with_unfilled_records_says_how_many_and_which_sums_are_nan():
+    """Every record present but gap filling held to its own window (gapfill_max_window_days
+    = 0): records stay unfilled and the year's NEE sum is NaN. The warning counts them and
+    names the NaN sums instead of calling the year 'partial' with '17520 of 17520 records'
+    (review round fourteen); a year that holds every record is not called partial."""
+    frame, _ = demo.site_year(seed=3)
+    config = Config(gapfill_max_window_days=0.0, ustar_bootstrap_draws=0)
+    with pytest.warns(FluxpartWarning):
+        result = process(frame, demo.site(), config)
+    row = result.annual.loc[2021]
+    assert row["records"] == row["records_expected"] == 17520
+    assert row["records_unfilled"] > 0 and np.isnan(row["nee"])
+    unfilled = [w for w in result.warnings if "stay unfilled" in w]
+    assert len(unfilled) == 1
+    assert unfilled[0].startswith(f"2021: {int(row['records_unfilled'])} records (")
+    assert "gapfill_max_window_days = 0 days" in unfilled[0] and "sums of nee" in unfilled[0]
+    assert not any("partial" in w for w in result.warnings)

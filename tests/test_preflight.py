@@ -197,3 +197,33 @@ def test_findings_are_sorted_fatal_first_and_print_their_stage():
     flags = [f.fatal for f in findings]
     assert flags == sorted(flags, reverse=True) and flags[0]
     assert str(findings[0]).startswith(findings[0].stage + ": ")
+
+
+def test_ustar_missing_for_half_the_year_is_named_with_its_nights(demo_frame):
+    """u* missing from July on: the u* filter rejects every night without u* (common
+    practice: without u* the turbulence cannot be shown), so the run says how many nights
+    with measured NEE that removes and when, instead of losing half the nights silently
+    (review round fourteen)."""
+    frame = demo_frame.copy()
+    frame.loc["2021-07-01":, "ustar"] = np.nan
+    _, findings = check_record(frame, demo.site())
+    text = [str(f) for f in findings if f.stage == "u* filter"]
+    assert len(text) == 1
+    assert "2021-07-01 .. 2021-12-31" in text[0] and "night records with measured NEE" in text[0]
+    # a few short u* dropouts are routine and not reported
+    frame = demo_frame.copy()
+    frame.loc["2021-07-01":"2021-07-03", "ustar"] = np.nan
+    _, findings = check_record(frame, demo.site())
+    assert "u* filter" not in _stages(findings)
+
+
+def test_nights_lost_to_missing_ustar_are_named_when_rref_cannot_run(demo_frame):
+    """u* kept at 3 % of the records: too few nights with u* for detection, so the fixed
+    fall-back filters them and no Rref window is left; the refusal names the nights with
+    NEE but no u*, not only 'supply measured night NEE' (review round fourteen)."""
+    frame = demo_frame.copy()
+    keep = np.random.default_rng(7).random(len(frame)) < 0.03
+    frame.loc[~keep, "ustar"] = np.nan
+    with pytest.raises(InsufficientDataError, match=r"more without u\*, which the u\* filter "
+                       r"rejects\); supply measured night NEE and its u\*"):
+        process(frame, demo.site())
