@@ -460,3 +460,24 @@ def test_a_year_with_unfilled_records_says_how_many_and_which_sums_are_nan():
     assert unfilled[0].startswith(f"2021: {int(row['records_unfilled'])} records (")
     assert "gapfill_max_window_days = 0 days" in unfilled[0] and "sums of nee" in unfilled[0]
     assert not any("partial" in w for w in result.warnings)
+
+
+def test_partitioned_sums_nan_for_an_unfilled_driver_are_named():
+    """Air temperature missing February to November: mid-year records lie more than
+    gapfill_max_window_days = 140 days (the widest window of marginal distribution
+    sampling, Reichstein et al. 2005 (m)) from any measured tair, stay unfilled, and the
+    year's Reco sums are NaN. Before, the run finished without any warning (review round
+    fourteen); now one names the NaN sums, their records and the driver."""
+    frame, _ = demo.site_year(seed=3)
+    frame.loc["2021-02-01":"2021-11-30", "tair"] = np.nan
+    with pytest.warns(FluxpartWarning):
+        result = process(frame, demo.site(), Config(ustar_bootstrap_draws=0,
+                                                    respiration_driver="tair"))
+    row = result.annual.loc[2021]
+    assert np.isnan(row["reco_nighttime"]) and np.isfinite(row["nee"])
+    lacking = int(result.timeseries["reco_nighttime"].isna().sum())
+    assert lacking == int(result.timeseries["tair_filled"].isna().sum()) > 0
+    text = [w for w in result.warnings if "are NaN, not totals" in w]
+    assert len(text) == 1 and text[0].startswith("2021: the sums of reco_nighttime")
+    assert f"reco_nighttime lacks {lacking} records" in text[0]
+    assert f"tair ({lacking} records)" in text[0]
