@@ -793,12 +793,14 @@ def _unfilled_warning(year, row, annual, timeseries, in_year, config) -> str:
     sums = (f"its sums of {', '.join(fluxes)} are NaN, not totals" if fluxes
             else "its sums are not annual totals")
     return (f"{year}: {int(row['records_unfilled'])} records "
-            f"({row['records_unfilled'] / row['records_expected']:.1%}) of NEE stay unfilled"
-            f"{span}: gap filling found fewer than gapfill_min_donors = {config.gapfill_min_donors} "
-            "similar measured records within gapfill_max_window_days = "
-            f"{config.gapfill_max_window_days:g} days of them, or their drivers are missing; "
-            f"{sums} "
-            "(records_unfilled in annual.parquet)")
+            f"({100 * row['records_unfilled'] / row['records_expected']:.2g} %) of NEE stay "
+            "unfilled"
+            f"{span}: no pass of gap filling found gapfill_min_donors = "
+            f"{config.gapfill_min_donors} measured records similar to them within "
+            f"gapfill_max_window_days = {config.gapfill_max_window_days:g} days (where a driver "
+            "is missing or filled with quality B or C, only the mean diurnal course can fill: "
+            "records of the same day or night class at the same time of day); "
+            f"{sums} (records_unfilled in annual.parquet)")
 
 
 def _modelled_sums_missing(year, row, timeseries, in_year, config) -> list:

@@ -459,6 +459,7 @@ def test_a_year_with_unfilled_records_says_how_many_and_which_sums_are_nan():
     assert len(unfilled) == 1
     assert unfilled[0].startswith(f"2021: {int(row['records_unfilled'])} records (")
     assert "gapfill_max_window_days = 0 days" in unfilled[0] and "sums of nee" in unfilled[0]
+    assert f"({100 * row['records_unfilled'] / 17520:.2g} %)" in unfilled[0]
     assert not any("partial" in w for w in result.warnings)
 
 
