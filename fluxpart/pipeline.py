@@ -634,6 +634,12 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     warnings.extend(ustar_seasonal.contrast_warnings(contrast, config.ustar_distinct_seasons))
     temperature, choice = _chosen_temperature(temperature, frame.index, screened, is_night,
                                               runs["central"], config)
+    if (choice is not None and not np.isfinite(choice.tsoil_weight) and "tsoil" in frame.columns
+            and np.isfinite(frame["tsoil"].to_numpy(dtype=float)).any()):
+        # soil temperature is in the record but could not be weighed against air temperature
+        warnings.append(f"respiration temperature: {temperature} used, as {choice.reason}; the "
+                        "part of the Reco and GPP uncertainty from the choice of temperature is "
+                        "not quantified (reco_uncertainty_temperature_driver NaN)")
     # the choice fitted each candidate on the central run's measured NEE: its fits are
     # reused where the measured temperature is the same series
     delay = 0 if choice is None else choice.delay_records

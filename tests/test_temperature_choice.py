@@ -289,3 +289,18 @@ def test_a_few_spikes_do_not_decide_the_respiration_temperature():
     with_spikes = choose_respiration_temperature(index, spiked, tair, tsoil, is_night)
     assert clean.driver == with_spikes.driver == "tsoil"
     assert with_spikes.delta_bic < -MIN_EVIDENCE_BIC
+
+
+def test_a_failed_soil_temperature_fit_is_warned_with_the_part_left_out():
+    """Two summer months: the soil-temperature Lloyd–Taylor fit finds no acceptable E0
+    window (E0 outside 30-450 K or under 5 K of range, the acceptance of Reichstein et al.
+    2005 (m)), so air temperature is used and the temperature-driver part of the Reco
+    uncertainty is NaN. Before, the total left that part out without a word (review round
+    fourteen)."""
+    frame, _ = demo.site_year(seed=3)
+    frame = frame.loc["2021-07-01":"2021-08-31"]
+    result = fluxpart.process(frame, demo.site(), Config(ustar_bootstrap_draws=0))
+    assert "fit failed" in result.provenance["respiration_driver"]["reason"]
+    assert np.isnan(result.annual.loc[2021, "reco_uncertainty_temperature_driver"])
+    text = [w for w in result.warnings if w.startswith("respiration temperature: tair used")]
+    assert len(text) == 1 and "reco_uncertainty_temperature_driver NaN" in text[0]
