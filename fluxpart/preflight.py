@@ -38,6 +38,8 @@ a day or more of records repeating        input (repeated records)            no
 earlier ones in every variable
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
+night records without measured NEE        gap filling (night, quality C)      no
+for more than 28 days
 u* missing at more than 10 % of the       u* filter (those nights rejected)   no
 night records with measured NEE
 Rg above the night threshold in most      night mask                          where the
@@ -387,6 +389,37 @@ def _long_gaps(index: pd.DatetimeIndex, nee: np.ndarray, interval_minutes: float
         "in annual.parquet)"), False)]
 
 
+def _long_night_gaps(index: pd.DatetimeIndex, nee: np.ndarray, is_night: np.ndarray) -> list:
+    """Runs of night records without measured NEE spanning more than the quality-A window.
+
+    Night gaps are filled from night records only (Falge et al. 2001,
+    :mod:`fluxpart.gapfill`), so where every night of weeks is missing while the days
+    are measured, their respiration comes from nights of other seasons at the same air
+    temperature: a gap of the whole record (:func:`_long_gaps`) never shows it.
+    """
+    nights = np.flatnonzero(is_night)
+    if nights.size == 0:
+        return []
+    missing = ~np.isfinite(nee[nights])
+    if missing.all():
+        return []
+    starts, records = gap_runs(missing)
+    first = index[nights[starts]]
+    last = index[nights[starts + records - 1]]
+    lengths = ((last - first) / pd.Timedelta(days=1)).to_numpy()
+    long = np.flatnonzero(lengths > QUALITY_A_WINDOW_DAYS)
+    if long.size == 0:
+        return []
+    longest = long[np.argmax(lengths[long])]
+    return [Finding("gap filling (night)", (
+        f"{long.size} stretch(es) longer than {QUALITY_A_WINDOW_DAYS:g} days with no measured "
+        f"night NEE ({int(records[long].sum())} night records), the longest "
+        f"{first[longest]:%Y-%m-%d} .. {last[longest]:%Y-%m-%d}: the nights in their middle lie "
+        f"more than {QUALITY_A_WINDOW_DAYS / 2:g} days from any measured night and are filled "
+        "from nights of other weeks or seasons (quality C), so the respiration and NEE summed "
+        "over them are weak evidence (share_filled_c in annual.parquet)"), False)]
+
+
 def _dark_rg(frame: pd.DataFrame, potential, config) -> list:
     """Rg that stays above the night threshold while the sun is down (an offset)."""
     if "rg" not in frame.columns:
@@ -610,7 +643,9 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     with np.errstate(invalid="ignore"):
         sunlit = rg > 0                   # measured sunlight (gaps in Rg count as none)
     findings += _daytime(days, np.isfinite(nee) & ~is_night & sunlit, config)
-    findings += _long_gaps(index, nee, interval_minutes)
+    long_gaps = _long_gaps(index, nee, interval_minutes)
+    # a night stretch inside a gap of the whole record is named by that gap already
+    findings += long_gaps or _long_night_gaps(index, nee, is_night)
     findings += _missing_ustar(index, night_measured, ustar)
     findings += ustar_findings
     if span_days < 365.0:

@@ -227,3 +227,24 @@ def test_nights_lost_to_missing_ustar_are_named_when_rref_cannot_run(demo_frame)
     with pytest.raises(InsufficientDataError, match=r"more without u\*, which the u\* filter "
                        r"rejects\); supply measured night NEE and its u\*"):
         process(frame, demo.site())
+
+
+def test_every_night_of_a_month_missing_is_named_though_the_days_are_measured(demo_frame):
+    """Night NEE missing from 1 June to 31 July with the days measured: night gaps are
+    filled from night records only (Falge et al. 2001 fill day and night separately), so
+    mid-June to mid-July nights lie more than 14 days from any measured night and take
+    the respiration of other seasons. No gap of the whole record shows it; a finding of
+    its own names the stretch (review round fourteen)."""
+    frame = demo_frame.copy()
+    night = frame["rg"].fillna(0.0) < 10.0
+    frame.loc[night & frame.index.month.isin([6, 7]), "nee"] = np.nan
+    _, findings = check_record(frame, demo.site())
+    text = [str(f) for f in findings if f.stage == "gap filling (night)"]
+    assert len(text) == 1 and "no measured night NEE" in text[0]
+    assert "2021-05-31" in text[0] or "2021-06-01" in text[0]
+    assert "2021-07-31" in text[0] or "2021-08-01" in text[0]
+    # a fortnight of missing nights stays within the quality-A window: no finding
+    frame = demo_frame.copy()
+    frame.loc[night & (frame.index >= "2021-06-01") & (frame.index < "2021-06-15"), "nee"] = np.nan
+    _, findings = check_record(frame, demo.site())
+    assert "gap filling (night)" not in _stages(findings)
