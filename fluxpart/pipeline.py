@@ -749,8 +749,10 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
             year = f"budget year {key} ({row['period_start']:%Y-%m-%d} to {last:%Y-%m-%d})"
         if row["records"] < row["records_expected"]:
             months = 12.0 * row["records"] / row["records_expected"]
+            held = (f"{months:.1f} months" if months >= 0.1   # a few days read as 0.0 months
+                    else f"{row['records'] * interval / 1440.0:.1f} days")
             warnings.append(f"{year} is a partial year ({int(row['records'])} of "
-                            f"{int(row['records_expected'])} records, {months:.1f} months): "
+                            f"{int(row['records_expected'])} records, {held}): "
                             "its sums are not annual totals and are not scaled up")
         in_year = np.asarray(year_keys) == key
         if row["records_unfilled"] > 0:

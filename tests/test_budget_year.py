@@ -224,3 +224,17 @@ def test_cli_net_uptake_of_a_partial_year_is_not_called_a_rate_per_year():
             "months: not an annual total)") in lines
     assert ("  2023: 8.43 ± 0.30 (1 sigma; u* threshold 0.160 m s-1; 96 records unfilled: "
             "not an annual total)") in lines
+
+
+def test_a_budget_year_of_one_day_is_stated_in_days_not_zero_months():
+    """A record from 29 February 2020 with year_start "03-01": budget year 2019 (1 March
+    2019 to 29 February 2020, a leap year's 366 days, calendar arithmetic) holds one day,
+    48 half-hours: 48 / 17568 x 12 = 0.03 months, which read '0.0 months'; it now says
+    '1.0 days' (review round fourteen)."""
+    frame, _ = demo.site_year(seed=3, year=2020, years=2)
+    frame = frame.loc["2020-02-29":"2021-03-10"]
+    with pytest.warns(Warning):
+        result = process(frame, demo.site(), Config(year_start="03-01",
+                                                    ustar_bootstrap_draws=0))
+    text = [w for w in result.warnings if w.startswith("budget year 2019")]
+    assert len(text) == 1 and "(48 of 17568 records, 1.0 days)" in text[0]
