@@ -707,7 +707,7 @@ tsoil = "Tsoil5"
     elif site.key == "C":  # ISO 8601 with +10:00 at the interval middle, kPa, NA
         stamps = (idx + step / 2).strftime("%Y-%m-%dT%H:%M:%S+10:00")
         body = pd.DataFrame({
-            "TIMESTAMP": stamps, "Fc": fmt(data.nee, 3, "NA"), "Fsd": fmt(data.rg, 1, "NA"),
+            "TIMESTAMP": stamps, "co2_net": fmt(data.nee, 3, "NA"), "sol_dn": fmt(data.rg, 1, "NA"),
             "Ta": fmt(data.tair, 2, "NA"), "VPD_kPa": fmt(data.vpd / 10, 3, "NA"),
             "ustar": fmt(data.ustar, 3, "NA"), "Ts": fmt(data.tsoil, 2, "NA"),
         })
@@ -717,8 +717,8 @@ time_column = "TIMESTAMP"
 time_format = "ISO8601"
 time_marks = "middle"
 missing = ["NA"]
-""", """nee = "Fc"
-rg = "Fsd"
+""", """nee = "co2_net"
+rg = "sol_dn"
 tair = "Ta"
 vpd = "VPD_kPa"
 ustar = "ustar"
