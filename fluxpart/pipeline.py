@@ -37,6 +37,7 @@ from . import (
     agreement,
     audit,
     budget,
+    budget_warnings,
     clock,
     gapfill,
     preflight,
@@ -742,22 +743,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     counts[screening.REASON_CODES[_REASON_MORNING_RELEASE]] = int(
         (reason == _REASON_MORNING_RELEASE).sum())
     counts[screening.REASON_CODES[0]] = int((reason == 0).sum())
-    for key, row in annual.iterrows():
-        year = key
-        if config.year_start != "01-01":
-            last = row["period_end"] - pd.Timedelta(days=1)
-            year = f"budget year {key} ({row['period_start']:%Y-%m-%d} to {last:%Y-%m-%d})"
-        if row["records"] < row["records_expected"]:
-            months = 12.0 * row["records"] / row["records_expected"]
-            held = (f"{months:.1f} months" if months >= 0.1   # a few days read as 0.0 months
-                    else f"{row['records'] * interval / 1440.0:.1f} days")
-            warnings.append(f"{year} is a partial year ({int(row['records'])} of "
-                            f"{int(row['records_expected'])} records, {held}): "
-                            "its sums are not annual totals and are not scaled up")
-        in_year = np.asarray(year_keys) == key
-        if row["records_unfilled"] > 0:
-            warnings.append(_unfilled_warning(year, row, annual, timeseries, in_year, config))
-        warnings.extend(_modelled_sums_missing(year, row, timeseries, in_year, config))
+    warnings.extend(budget_warnings.budget_year_warnings(
+        annual, timeseries, year_keys, interval, config, list(_BUDGET_FLUXES.values())))
     for text in warnings:
         _warnings.warn(text, FluxpartWarning, stacklevel=2)
     facts = schema.file_metadata(site, interval)
@@ -784,58 +771,6 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                     "uncertainty": {"confidence": uncertainty.CONFIDENCE,
                                     "not_quantified": list(uncertainty.NOT_QUANTIFIED),
                                     "checked": uncertainty.CALIBRATION_CHECK}})
-
-
-def _unfilled_warning(year, row, annual, timeseries, in_year, config) -> str:
-    """Name the NEE records of a budget year that gap filling left unfilled, and the NaN sums.
-
-    A year with unfilled records holds every record but no total: its NEE sum, and each sum
-    resting on an unfilled record, is NaN (:func:`fluxpart.budget.aggregate`).
-    """
-    unfilled = in_year & ~np.isfinite(timeseries["nee_filled"].to_numpy(dtype=float))
-    stamps = timeseries.index[unfilled]
-    span = (f", {stamps[0]:%Y-%m-%d %H:%M} .. {stamps[-1]:%Y-%m-%d %H:%M} (interval starts)"
-            if stamps.size else "")
-    fluxes = [name for name in _BUDGET_FLUXES.values()
-              if name in annual.columns and pd.isna(row[name])]
-    sums = (f"its sums of {', '.join(fluxes)} are NaN, not totals" if fluxes
-            else "its sums are not annual totals")
-    return (f"{year}: {int(row['records_unfilled'])} records "
-            f"({100 * row['records_unfilled'] / row['records_expected']:.2g} %) of NEE stay "
-            "unfilled"
-            f"{span}: no pass of gap filling found gapfill_min_donors = "
-            f"{config.gapfill_min_donors} measured records similar to them within "
-            f"gapfill_max_window_days = {config.gapfill_max_window_days:g} days (where a driver "
-            "is missing or filled with quality B or C, only the mean diurnal course can fill: "
-            "records of the same day or night class at the same time of day); "
-            f"{sums} (records_unfilled in annual.parquet)")
-
-
-def _modelled_sums_missing(year, row, timeseries, in_year, config) -> list:
-    """Name the partitioned sums of a budget year that are NaN for want of a modelled value.
-
-    Reco and GPP need their drivers at every record; where a driver stays unfilled (a gap
-    farther than ``gapfill_max_window_days`` from any measured value) or a method has no
-    parameters, the record's value and the year's sum are NaN. Nighttime GPP missing only
-    because NEE stayed unfilled is named by :func:`_unfilled_warning`.
-    """
-    names = ["reco_nighttime", "gpp_daytime", "reco_daytime"]
-    if np.isfinite(row["nee"]):
-        names.insert(1, "gpp_nighttime")
-    missing = {name: int((in_year & ~np.isfinite(timeseries[name].to_numpy(dtype=float))).sum())
-               for name in names if name in row.index and pd.isna(row[name])}
-    if not missing:
-        return []
-    gaps = [f"{name} ({count} records)" for name in ("rg", "tair", "vpd", "tsoil")
-            if f"{name}_filled" in timeseries.columns
-            and (count := int((in_year & ~np.isfinite(timeseries[f"{name}_filled"].to_numpy(
-                dtype=float))).sum()))]
-    cause = (f"drivers left unfilled there, more than gapfill_max_window_days = "
-             f"{config.gapfill_max_window_days:g} days from a measured value: {', '.join(gaps)}"
-             if gaps else "no fitted parameters reach them")
-    return [f"{year}: the sums of {', '.join(missing)} are NaN, not totals: "
-            + ", ".join(f"{name} lacks {count} records" for name, count in missing.items())
-            + f" ({cause})"]
 
 
 def _threshold_runs(arguments, runs, temperature, config, night_fit, delay, warnings, step):

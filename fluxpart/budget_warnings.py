@@ -1,0 +1,114 @@
+"""Warnings about a budget year's sums: partial years, unfilled NEE, NaN partitioned sums.
+
+Pure functions of the annual table and the time series a run wrote (its orchestrator,
+:func:`fluxpart.pipeline.process`, adds the texts to the run's warnings). A sum the budget
+leaves NaN, or a year that is not a whole one, must not pass without a word: the annual
+table's numbers are read as annual totals.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+__all__ = ["budget_year_warnings"]
+
+
+def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_keys,
+                         interval: float, config, fluxes) -> list[str]:
+    """The warnings of each budget year of `annual`.
+
+    Parameters
+    ----------
+    annual : pandas.DataFrame
+        Indexed by budget year: ``records``, ``records_expected``, ``records_unfilled``,
+        ``period_start``, ``period_end``, ``nee`` and the partitioned sums [g C m-2].
+    timeseries : pandas.DataFrame
+        The run's records: ``nee_filled``, the partitioned fluxes and the filled drivers
+        (``rg_filled`` ...) [their canonical units].
+    year_keys : array_like of int
+        Budget year of each record of `timeseries`.
+    interval : float
+        Record length [min].
+    config : fluxpart.Config
+        The run's settings (``year_start``, ``gapfill_min_donors``,
+        ``gapfill_max_window_days``).
+    fluxes : list of str
+        The annual sums to name where NaN (``nee``, ``gpp_nighttime`` ...).
+
+    Returns
+    -------
+    list of str
+        One text per finding: a partial year, NEE records left unfilled, partitioned sums
+        NaN for want of a driver or parameters.
+    """
+    keys = np.asarray(year_keys)
+    out = []
+    for key, row in annual.iterrows():
+        year = key
+        if config.year_start != "01-01":
+            last = row["period_end"] - pd.Timedelta(days=1)
+            year = f"budget year {key} ({row['period_start']:%Y-%m-%d} to {last:%Y-%m-%d})"
+        if row["records"] < row["records_expected"]:
+            months = 12.0 * row["records"] / row["records_expected"]
+            held = (f"{months:.1f} months" if months >= 0.1   # a few days read as 0.0 months
+                    else f"{row['records'] * interval / 1440.0:.1f} days")
+            out.append(f"{year} is a partial year ({int(row['records'])} of "
+                       f"{int(row['records_expected'])} records, {held}): "
+                       "its sums are not annual totals and are not scaled up")
+        in_year = keys == key
+        if row["records_unfilled"] > 0:
+            out.append(_unfilled_warning(year, row, annual, timeseries, in_year, config, fluxes))
+        out.extend(_modelled_sums_missing(year, row, timeseries, in_year, config))
+    return out
+
+
+def _unfilled_warning(year, row, annual, timeseries, in_year, config, fluxes) -> str:
+    """Name the NEE records of a budget year that gap filling left unfilled, and the NaN sums.
+
+    A year with unfilled records holds every record but no total: its NEE sum, and each sum
+    resting on an unfilled record, is NaN (:func:`fluxpart.budget.aggregate`).
+    """
+    unfilled = in_year & ~np.isfinite(timeseries["nee_filled"].to_numpy(dtype=float))
+    stamps = timeseries.index[unfilled]
+    span = (f", {stamps[0]:%Y-%m-%d %H:%M} .. {stamps[-1]:%Y-%m-%d %H:%M} (interval starts)"
+            if stamps.size else "")
+    fluxes = [name for name in fluxes if name in annual.columns and pd.isna(row[name])]
+    sums = (f"its sums of {', '.join(fluxes)} are NaN, not totals" if fluxes
+            else "its sums are not annual totals")
+    return (f"{year}: {int(row['records_unfilled'])} records "
+            f"({100 * row['records_unfilled'] / row['records_expected']:.2g} %) of NEE stay "
+            "unfilled"
+            f"{span}: no pass of gap filling found gapfill_min_donors = "
+            f"{config.gapfill_min_donors} measured records similar to them within "
+            f"gapfill_max_window_days = {config.gapfill_max_window_days:g} days (where a driver "
+            "is missing or filled with quality B or C, only the mean diurnal course can fill: "
+            "records of the same day or night class at the same time of day); "
+            f"{sums} (records_unfilled in annual.parquet)")
+
+
+def _modelled_sums_missing(year, row, timeseries, in_year, config) -> list:
+    """Name the partitioned sums of a budget year that are NaN for want of a modelled value.
+
+    Reco and GPP need their drivers at every record; where a driver stays unfilled (a gap
+    farther than ``gapfill_max_window_days`` from any measured value) or a method has no
+    parameters, the record's value and the year's sum are NaN. Nighttime GPP missing only
+    because NEE stayed unfilled is named by :func:`_unfilled_warning`.
+    """
+    names = ["reco_nighttime", "gpp_daytime", "reco_daytime"]
+    if np.isfinite(row["nee"]):
+        names.insert(1, "gpp_nighttime")
+    missing = {name: int((in_year & ~np.isfinite(timeseries[name].to_numpy(dtype=float))).sum())
+               for name in names if name in row.index and pd.isna(row[name])}
+    if not missing:
+        return []
+    gaps = [f"{name} ({count} records)" for name in ("rg", "tair", "vpd", "tsoil")
+            if f"{name}_filled" in timeseries.columns
+            and (count := int((in_year & ~np.isfinite(timeseries[f"{name}_filled"].to_numpy(
+                dtype=float))).sum()))]
+    cause = (f"drivers left unfilled there, more than gapfill_max_window_days = "
+             f"{config.gapfill_max_window_days:g} days from a measured value: {', '.join(gaps)}"
+             if gaps else "no fitted parameters reach them")
+    return [f"{year}: the sums of {', '.join(missing)} are NaN, not totals: "
+            + ", ".join(f"{name} lacks {count} records" for name, count in missing.items())
+            + f" ({cause})"]
