@@ -80,10 +80,10 @@ def _unfilled_warning(year, row, annual, timeseries, in_year, config, fluxes) ->
             f"({100 * row['records_unfilled'] / row['records_expected']:.2g} %) of NEE stay "
             "unfilled"
             f"{span}: no pass of gap filling found gapfill_min_donors = "
-            f"{config.gapfill_min_donors} measured records similar to them within "
-            f"gapfill_max_window_days = {config.gapfill_max_window_days:g} days (where a driver "
-            "is missing or filled with quality B or C, only the mean diurnal course can fill: "
-            "records of the same day or night class at the same time of day); "
+            f"{config.gapfill_min_donors} measured records for them, not even in the whole "
+            "record (where a driver is missing or filled with quality B or C, only the mean "
+            "diurnal course can fill: records of the same time of day, and for a night record "
+            "night records of any hour); "
             f"{sums} (records_unfilled in annual.parquet)")
 
 

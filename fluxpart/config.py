@@ -189,7 +189,10 @@ class Config:
     gapfill_max_window_days : float
         Largest half-width of any gap-filling window [days]; 140, Reichstein,
         gap-filling flow chart, workshop slides 2004 (the driver steps widen to
-        ±140 days).
+        ±140 days). A gap no window up to this fills takes the last resort of
+        :mod:`fluxpart.gapfill` (the diurnal course widened to the whole record; for a
+        night gap, then the night records of any hour; since 0.19.0), so that a few
+        unfillable records no longer make a year's NEE NaN.
     rg_tolerance : float
         Marginal distribution sampling: similar global radiation within ± this
         [W m-2]; Reichstein et al. (2005), appendix: 50 W m-2.

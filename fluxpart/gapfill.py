@@ -31,8 +31,21 @@ K <= ``max_window_days`` (default 140 days: the flow chart widens the driver ste
 to ±140 days; it gives the diurnal course no end, and we stop it there too); a
 pass whose K exceeds it is skipped, and rounds stop once the diurnal window covers
 the whole record. A pass fills a gap only where it finds at least ``min_donors``
-records (default 3, our choice, see :func:`fill_marginal`); a gap that no pass can
-fill stays NaN with method -1.
+records (default 3, our choice, see :func:`fill_marginal`).
+
+Last resort (since 0.19.0). A gap that no pass of the sequence fills takes the mean
+diurnal course at doubled windows (±2K, ±4K, ... days after the sequence's largest K)
+until the window covers the whole record: the flow chart gives the diurnal course no
+end, and without a fill the gap makes every sum it enters NaN. A night gap still
+unfilled then takes the night records of any hour within ±14, 28, 56, ... days,
+labelled as the radiation step (a night gap's Rg is zero, sun below the horizon, and
+night NEE is respiration, with no light-driven course through the night): this is
+for the hours that are night only in a season without measured nights (e.g. 07:00
+in a winter whose nights are all missing). Both are quality C; a gap with fewer than
+``min_donors`` records even then stays NaN with method -1. Neither pass runs where
+the sequence fills every gap, so such records are unchanged, and neither fills a
+driver (:func:`fill_drivers`): a temperature taken from another season would pass
+unseen into the modelled fluxes, so a driver gap beyond every window stays NaN.
 
 Donors. By default night gaps are filled only from night records and day gaps
 only from day records: each class runs the whole sequence on its own records
@@ -220,6 +233,9 @@ _DIURNAL_HALF_WIDTH_MINUTES = 60
 #: Increment of the widened rounds [days]; Reichstein, gap-filling flow chart,
 #: workshop slides 2004.
 _WIDENING_STEP_DAYS = 7
+#: First half-width of the last-resort fill of night gaps from night records of any
+#: hour [days]: past the B class's ±7 days of the radiation step, so its fills are C.
+_LAST_RESORT_NIGHT_DAYS = 14
 #: Upper bound on the elements of any (gaps × window records) temporary.
 _MAX_BLOCK_ELEMENTS = 1 << 20
 #: Records per block of gaps sharing one window slice at a gap density of
@@ -647,7 +663,8 @@ def _diurnal_course_pass(values, measured, gaps, half_width_days, per_day, diurn
 
 
 def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_conditions,
-                 max_window_days, min_donors=1, is_night=None, interpolated=None, wanted=None):
+                 max_window_days, min_donors=1, is_night=None, interpolated=None, wanted=None,
+                 last_resort=False):
     """Run the pass sequence on one series; return the output columns as arrays.
 
     ``all_conditions`` are (driver, tolerance) pairs of step 1 or ``None``;
@@ -660,6 +677,9 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
     ``interpolated`` (bool per record, or ``None``) marks gaps already filled by
     interpolation: they keep their value and are never donors. ``wanted`` (bool per
     record, or ``None`` for all) limits the gaps filled; the others stay unfilled.
+    ``last_resort`` runs the last-resort passes (module notes) on the gaps the
+    sequence leaves: for a flux only, since a driver filled from another season
+    would pass unseen into the modelled fluxes.
     """
     n = values.size
     measured = ~np.isnan(values)
@@ -687,7 +707,9 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
         if not course_donors.any() or not remaining.any():
             continue
         outputs = _fill_class(values, donors, remaining, passes, per_day, diurnal_records,
-                              all_conditions, radiation_conditions, min_donors, course_donors)
+                              all_conditions, radiation_conditions, min_donors, course_donors,
+                              last_resort=last_resort,
+                              night_class=is_night is not None and not course_from_all)
         for filled, step, half_width_days, pass_mean, pass_count, pass_spread in outputs:
             value[filled] = pass_mean
             method[filled] = step
@@ -698,8 +720,15 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
 
 
 def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all_conditions,
-                radiation_conditions, min_donors, course_donors):
-    """Fill the gaps ``remaining`` from the records ``donors``; yield each pass's fills."""
+                radiation_conditions, min_donors, course_donors, last_resort=False,
+                night_class=False):
+    """Fill the gaps ``remaining`` from the records ``donors``; yield each pass's fills.
+
+    With ``last_resort``, gaps the sequence leaves take the two last-resort passes
+    (module notes):
+    the diurnal course widened to the whole record, then, for the night class only
+    (``night_class``), the night records of any hour.
+    """
     n = values.size
     remaining = remaining.copy()
 
@@ -738,6 +767,73 @@ def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all
         remaining[filled] = False
         if not remaining.any():
             break
+    if last_resort and remaining.any():
+        outputs += _widened_course(values, course_donors, remaining, passes, per_day,
+                                   diurnal_records, min_donors)
+    if last_resort and night_class and remaining.any():
+        outputs += _nearby_nights(values, donors, remaining, per_day, min_donors)
+    return outputs
+
+
+def _widened_course(values, course_donors, remaining, passes, per_day, diurnal_records,
+                    min_donors):
+    """Last resort: the diurnal course at doubled windows up to the whole record.
+
+    For gaps that no pass of the sequence filled: the flow chart widens the mean
+    diurnal course without end, so it goes on past the sequence's largest window,
+    doubling the half-width each pass (a record of ten years needs at most five more
+    passes) until the window covers the record.
+    """
+    n = values.size
+    record_days = n / per_day
+    course = [k for step, k in passes if step == METHOD_DIURNAL_COURSE]
+    half_width = max(max(course, default=0), _WIDENING_STEP_DAYS)
+    outputs = []
+    while remaining.any() and max(course, default=0) < record_days:
+        half_width = int(min(2 * half_width, np.ceil(record_days)))
+        course.append(half_width)
+        gaps = np.flatnonzero(remaining)
+        pass_mean, pass_count, pass_spread = _diurnal_course_pass(
+            values, course_donors, gaps, half_width, per_day, diurnal_records)
+        found = pass_count >= min_donors
+        filled = gaps[found]
+        outputs.append((filled, METHOD_DIURNAL_COURSE, half_width, pass_mean[found],
+                        pass_count[found], pass_spread[found]))
+        remaining[filled] = False
+    return outputs
+
+
+def _nearby_nights(values, donors, remaining, per_day, min_donors):
+    """Last resort for night gaps: the night records of any hour within ±K days.
+
+    A night gap's global radiation is zero (the sun is below the horizon), so this is
+    the radiation-only step with the gap's Rg known without a sensor, and night NEE,
+    being respiration, has no light-driven course through the night. Half-widths 14,
+    28, 56, ... days up to the whole record, so the fills are quality C.
+    """
+    n = values.size
+    positions = np.flatnonzero(donors)
+    outputs = []
+    half_width = _LAST_RESORT_NIGHT_DAYS
+    while remaining.any() and positions.size:
+        gaps = np.flatnonzero(remaining)
+        reach = int(half_width * per_day)
+        lower = np.searchsorted(positions, gaps - reach, side="left")
+        upper = np.searchsorted(positions, gaps + reach, side="right")
+        found = (upper - lower) >= min_donors
+        filled = gaps[found]
+        mean = np.empty(filled.size)
+        spread = np.empty(filled.size)
+        for i, (a, b) in enumerate(zip(lower[found], upper[found], strict=True)):
+            picked = values[positions[a:b]]
+            mean[i] = picked.mean()
+            spread[i] = picked.std()
+        outputs.append((filled, METHOD_RADIATION, half_width, mean, (upper - lower)[found],
+                        spread))
+        remaining[filled] = False
+        if half_width * per_day >= n:
+            break
+        half_width *= 2
     return outputs
 
 
@@ -843,9 +939,10 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         Similar vapour pressure deficit within ± this [hPa]; default 5, Reichstein et
         al. (2005).
     max_window_days : float
-        Largest half-width of any window [days]; default 140 (Reichstein,
-        gap-filling flow chart, workshop slides 2004), ``numpy.inf`` to widen up to
-        the whole record.
+        Largest half-width of any window of the pass sequence [days]; default 140
+        (Reichstein, gap-filling flow chart, workshop slides 2004), ``numpy.inf`` to
+        widen up to the whole record. Gaps the sequence leaves unfilled take the
+        last-resort passes beyond it (module notes).
     min_donors : int
         Fewest records a pass must find to fill a gap; with fewer, the gap falls to
         the next pass. Default 3, our choice: one random error (about ±1–2 µmol m-2
@@ -958,7 +1055,7 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         all_conditions=all_conditions,
         radiation_conditions=radiation_conditions,
         max_window_days=max_window_days, min_donors=min_donors, is_night=night,
-        wanted=wanted)
+        wanted=wanted, last_resort=True)
     return _output_frame(index, *columns)
 
 

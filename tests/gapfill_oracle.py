@@ -82,12 +82,35 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_conditions,
     quality = np.where(measured, 0, -1).astype(np.int8)
     sequence = _steps_in_order(conditions is not None, radiation_conditions is not None,
                                max_window_days, n / per_day)
+    last_course = max([k for step, k in sequence if step == 3], default=0)
     for t in np.flatnonzero(~measured):
         if fixed is not None and fixed[t]:
             method[t], quality[t] = 4, 4
             continue
         donor = measured if is_night is None else measured & (is_night == is_night[t])
-        for step, k in sequence:
+        # last resort (module notes, since 0.19.0): the diurnal course at doubled
+        # windows until it covers the record, then, for a night gap, night records of
+        # any hour within ±14, 28, 56, ... days (labelled step 2, quality C)
+        widened, k = [], max(last_course, 7)
+        while last_course < n / per_day and (not widened or widened[-1] < n / per_day):
+            k = int(min(2 * k, np.ceil(n / per_day)))
+            widened.append(k)
+        nights, k = [], 14
+        if is_night is not None and is_night[t]:
+            while True:
+                nights.append(k)
+                if k * per_day >= n:
+                    break
+                k *= 2
+        for step, k in sequence + [(3, k) for k in widened] + [(5, k) for k in nights]:
+            if step == 5:
+                lo, hi = max(0, t - k * per_day), min(n, t + k * per_day + 1)
+                picked = y[lo:hi][donor[lo:hi]]
+                if picked.size >= min_donors:
+                    value[t], method[t], window[t] = picked.mean(), 2, 2.0 * k
+                    count[t], std[t], quality[t] = picked.size, picked.std(), 3
+                    break
+                continue
             if step in (1, 2):
                 pairs = conditions if step == 1 else radiation_conditions
                 if any(np.isnan(driver[t]) for driver, _ in pairs):

@@ -476,16 +476,56 @@ def test_all_missing_target():
     assert out["method"].dtype == np.int8 and out["quality"].dtype == np.int8
 
 
-def test_gap_without_data_in_reach_stays_unfilled():
-    """Gaps farther than every window from any measured record stay NaN (method -1)."""
+def test_gap_beyond_every_window_takes_the_last_resort():
+    """Gaps farther than every window of the sequence take the widened diurnal course.
+
+    The flow chart widens the mean diurnal course without end (Reichstein, gap-filling
+    flow chart, workshop slides 2004); fluxpart's sequence stops at max_window_days and
+    the last resort widens on, doubling, with quality C (module notes).
+    """
     n = 48 * 100
     values = np.full(n, np.nan)
     values[: 48 * 5] = 1.0  # only the first 5 days are measured
     out = fill_marginal(values, _drivers(n, 0.0, 5.0, 1.0), _index(n), max_window_days=14)
     method = out["method"].to_numpy()
-    assert (method[48 * 5: 48 * 19] > 0).all()  # within 14 days of the data: filled
-    assert (method[48 * 20:] == -1).all() and out["value"].iloc[48 * 20:].isna().all()
-    assert (out["quality"].iloc[48 * 20:] == -1).all()
+    window = out["window_days"].to_numpy()
+    assert (method[48 * 5: 48 * 19] > 0).all() and (window[48 * 5: 48 * 19] <= 29).all()
+    assert (method[48 * 20:] == 3).all() and (window[48 * 20:] > 29).all()
+    assert (out["quality"].iloc[48 * 20:] == 3).all()          # C
+    np.testing.assert_array_equal(out["value"].iloc[48 * 20:], 1.0)
+
+
+def test_gap_without_enough_records_anywhere_stays_unfilled():
+    """With fewer than min_donors measured records in the whole record: NaN, method -1."""
+    n = 48 * 30
+    values = np.full(n, np.nan)
+    values[[10, 500]] = 1.0
+    night = np.ones(n, dtype=bool)
+    out = fill_marginal_module(values, _drivers(n, 0.0, 5.0, 1.0), _index(n), is_night=night,
+                               min_donors=3)
+    gaps = np.isnan(values)
+    assert (out["method"].to_numpy()[gaps] == -1).all() and out["value"][gaps].isna().all()
+    assert (out["quality"].to_numpy()[gaps] == -1).all()
+
+
+def test_night_gap_at_an_hour_never_measured_takes_nearby_nights():
+    """A night gap at an hour with no measured night record takes nights of any hour.
+
+    Night NEE is respiration and the sun is below the horizon (Rg = 0), so the records
+    of the night class nearby stand in (last resort, quality C, labelled as the
+    radiation step); the day class never donates to a night gap (Falge et al. 2001).
+    """
+    index = _index(48 * 60)
+    hour = index.hour.to_numpy()
+    night = (hour < 6) | (hour >= 20)
+    values = np.where(night, 2.0, -5.0)
+    values[hour == 5] = np.nan                   # 05:00–05:59 never measured at night
+    values[(hour == 4) | (hour == 20)] = np.nan  # nor within ±1 h of it
+    out = fill_marginal_module(values, _drivers(len(index)), index, is_night=night)
+    five = hour == 5
+    assert (out["method"].to_numpy()[five] == 2).all()
+    assert (out["quality"].to_numpy()[five] == 3).all()
+    np.testing.assert_array_equal(out["value"].to_numpy()[five], 2.0)   # nights only
 
 
 def test_inputs_not_modified():

@@ -444,12 +444,16 @@ def test_screening_summary_lists_no_reason_it_cannot_decide():
 
 
 def test_a_year_with_unfilled_records_says_how_many_and_which_sums_are_nan():
-    """Every record present but gap filling held to its own window (gapfill_max_window_days
-    = 0): records stay unfilled and the year's NEE sum is NaN. The warning counts them and
-    names the NaN sums instead of calling the year 'partial' with '17520 of 17520 records'
-    (review round fourteen); a year that holds every record is not called partial."""
+    """NEE and every driver missing at 10:00-14:59 on every day of the year: the records
+    of 11:00-13:59 have no measured NEE within an hour of their time of day anywhere in
+    the record (the diurnal course's ±1 h, Reichstein et al. 2005), so no pass
+    of gap filling (last resort included) can fill them, and the year's NEE sum is NaN.
+    The warning counts them and names the NaN sums instead of calling the year 'partial'
+    with '17520 of 17520 records' (review round fourteen)."""
     frame, _ = demo.site_year(seed=3)
-    config = Config(gapfill_max_window_days=0.0, ustar_bootstrap_draws=0)
+    midday = (frame.index.hour >= 10) & (frame.index.hour < 15)
+    frame.loc[midday, ["nee", "rg", "tair", "vpd"]] = np.nan
+    config = Config(ustar_bootstrap_draws=0)
     with pytest.warns(FluxpartWarning):
         result = process(frame, demo.site(), config)
     row = result.annual.loc[2021]
@@ -458,9 +462,27 @@ def test_a_year_with_unfilled_records_says_how_many_and_which_sums_are_nan():
     unfilled = [w for w in result.warnings if "stay unfilled" in w]
     assert len(unfilled) == 1
     assert unfilled[0].startswith(f"2021: {int(row['records_unfilled'])} records (")
-    assert "gapfill_max_window_days = 0 days" in unfilled[0] and "sums of nee" in unfilled[0]
+    assert "not even in the whole record" in unfilled[0] and "sums of nee" in unfilled[0]
     assert f"({100 * row['records_unfilled'] / 17520:.2g} %)" in unfilled[0]
     assert not any("partial" in w for w in result.warnings)
+
+
+def test_gaps_beyond_every_window_take_the_last_resort():
+    """Gap filling held to its own window (gapfill_max_window_days = 0): the gaps that no
+    window of the sequence fills take the last resort of fluxpart.gapfill (the diurnal
+    course widened to the whole record, as the flow chart widens it without end;
+    Reichstein, gap-filling flow chart, workshop slides 2004), quality C, and the year has
+    a total instead of NaN."""
+    frame, _ = demo.site_year(seed=3)
+    result = process(frame, demo.site(), Config(gapfill_max_window_days=0.0,
+                                                ustar_bootstrap_draws=0))
+    row = result.annual.loc[2021]
+    assert row["records_unfilled"] == 0 and np.isfinite(row["nee"])
+    table = result.timeseries
+    widened = table["nee_fill_window_days"].to_numpy() > 1.0
+    assert widened.any()
+    assert set(table.loc[widened, "nee_fill_quality"].astype(str)) == {"C"}
+    assert not any("stay unfilled" in w for w in result.warnings)
 
 
 def test_partitioned_sums_nan_for_an_unfilled_driver_are_named():
