@@ -1,4 +1,5 @@
-"""Warnings about a budget year's sums: partial years, unfilled NEE, NaN partitioned sums.
+"""Warnings about a budget year's sums: partial years, unfilled NEE, NaN partitioned sums,
+intervals that leave a part of the uncertainty out.
 
 Pure functions of the annual table and the time series a run wrote (its orchestrator,
 :func:`fluxpart.pipeline.process`, adds the texts to the run's warnings). A sum the budget
@@ -40,7 +41,8 @@ def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_ke
     -------
     list of str
         One text per finding: a partial year, NEE records left unfilled, partitioned sums
-        NaN for want of a driver or parameters.
+        NaN for want of a driver or parameters, uncertainty parts left out of the
+        intervals (``uncertainty_parts_missing``).
     """
     keys = np.asarray(year_keys)
     out = []
@@ -60,7 +62,31 @@ def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_ke
         if row["records_unfilled"] > 0:
             out.append(_unfilled_warning(year, row, annual, timeseries, in_year, config, fluxes))
         out.extend(_modelled_sums_missing(year, row, timeseries, in_year, config))
+        out.extend(_uncertainty_parts_missing(year, row, config))
     return out
+
+
+def _uncertainty_parts_missing(year, row, config) -> list:
+    """Name the parts of the uncertainty a budget year's 95 % intervals leave out.
+
+    A part that could not be estimated is NaN and left out of ``X_uncertainty_total``, so
+    the year's ``X_ci95_low`` … ``X_ci95_high`` are narrower than the uncertainty is
+    (``uncertainty_parts_missing`` in the annual table lists the parts).
+    """
+    parts = row.get("uncertainty_parts_missing")
+    if not isinstance(parts, str) or not parts:
+        return []
+    causes = []
+    if "ustar" in parts.split(", "):
+        if config.ustar_method == "fixed":
+            causes.append("a fixed u* threshold (ustar_method = \"fixed\") has no "
+                          "bootstrap of its own uncertainty")
+        elif config.ustar_bootstrap_draws == 0:
+            causes.append("ustar_bootstrap_draws = 0 turns the u* threshold's bootstrap off")
+    cause = f" ({'; '.join(causes)})" if causes else ""
+    return [f"{year}: the 95 % intervals leave out the {parts} part(s) of the uncertainty, "
+            f"which could not be estimated{cause}: they understate the uncertainty of the "
+            "year's sums (uncertainty_parts_missing in annual.parquet)"]
 
 
 def _unfilled_warning(year, row, annual, timeseries, in_year, config, fluxes) -> str:
