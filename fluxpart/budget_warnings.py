@@ -15,7 +15,7 @@ __all__ = ["budget_year_warnings"]
 
 
 def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_keys,
-                         interval: float, config, fluxes) -> list[str]:
+                         interval: float, config, fluxes, failed=()) -> list[str]:
     """The warnings of each budget year of `annual`.
 
     Parameters
@@ -35,6 +35,10 @@ def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_ke
         ``gapfill_max_window_days``).
     fluxes : list of str
         The annual sums to name where NaN (``nee``, ``gpp_nighttime`` ...).
+    failed : collection of str, optional
+        Partitioning methods (``"nighttime"``, ``"daytime"``) that could not fit: their
+        NaN sums are named by that method's own warning
+        (:func:`fluxpart.method_failure.failure_warning`), not here.
 
     Returns
     -------
@@ -59,7 +63,7 @@ def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_ke
         in_year = keys == key
         if row["records_unfilled"] > 0:
             out.append(_unfilled_warning(year, row, annual, timeseries, in_year, config, fluxes))
-        out.extend(_modelled_sums_missing(year, row, timeseries, in_year, config))
+        out.extend(_modelled_sums_missing(year, row, timeseries, in_year, config, failed))
     return out
 
 
@@ -87,7 +91,7 @@ def _unfilled_warning(year, row, annual, timeseries, in_year, config, fluxes) ->
             f"{sums} (records_unfilled in annual.parquet)")
 
 
-def _modelled_sums_missing(year, row, timeseries, in_year, config) -> list:
+def _modelled_sums_missing(year, row, timeseries, in_year, config, failed=()) -> list:
     """Name the partitioned sums of a budget year that are NaN for want of a modelled value.
 
     Reco and GPP need their drivers at every record; where a driver stays unfilled (a gap
@@ -98,6 +102,7 @@ def _modelled_sums_missing(year, row, timeseries, in_year, config) -> list:
     names = ["reco_nighttime", "gpp_daytime", "reco_daytime"]
     if np.isfinite(row["nee"]):
         names.insert(1, "gpp_nighttime")
+    names = [name for name in names if name.split("_")[1] not in failed]
     missing = {name: int((in_year & ~np.isfinite(timeseries[name].to_numpy(dtype=float))).sum())
                for name in names if name in row.index and pd.isna(row[name])}
     if not missing:
