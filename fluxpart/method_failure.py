@@ -42,8 +42,8 @@ from .errors import InsufficientDataError
 from .partition.daytime import PARAMETER_COLUMNS, DaytimeResult
 from .partition.nighttime import NighttimeResult
 
-__all__ = ["METHOD_COLUMNS", "borrowed_e0", "failed", "failure_warning", "first_fit", "nan_daytime",
-           "nan_nighttime", "partition_both"]
+__all__ = ["METHOD_COLUMNS", "blank", "borrowed_e0", "failed", "failed_methods",
+           "failure_warning", "first_fit", "nan_daytime", "nan_nighttime", "partition_both"]
 
 #: The per-record columns each method gives (µmol m-2 s-1), NaN where it failed.
 METHOD_COLUMNS = {"nighttime": ("gpp_nighttime", "reco_nighttime"),
@@ -124,6 +124,39 @@ def failed(result) -> bool:
     if isinstance(result, NighttimeResult):
         return len(result.e0_annual) == 0
     return len(result.parameters) == 0
+
+
+def failed_methods(night, day) -> list:
+    """Names of the methods whose results (`night`, `day`) are those of a failed fit."""
+    return [name for name, result in (("nighttime", night), ("daytime", day)) if failed(result)]
+
+
+def blank(table: pd.DataFrame, methods) -> pd.DataFrame:
+    """`table` with every number column of the methods that could not fit set NaN.
+
+    The columns of a method are those named ``gpp_<method>...`` or ``reco_<method>...``
+    (sums, 1-sigma parts, totals, 95 % intervals, u* scenarios). An uncertainty part
+    computed from another model (the respiration form's shift, say) has no sum to
+    belong to where the method gave none.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        A daily, monthly or annual budget table.
+    methods : collection of str
+        ``"nighttime"`` and/or ``"daytime"``.
+
+    Returns
+    -------
+    pandas.DataFrame
+        A new table (the same object where `methods` is empty).
+    """
+    if not methods:
+        return table
+    prefixes = tuple(f"{flux}_{method}" for method in methods for flux in ("gpp", "reco"))
+    columns = [column for column in table.columns if str(column).startswith(prefixes)
+               and pd.api.types.is_float_dtype(table[column])]
+    return table.assign(**{column: np.nan for column in columns})
 
 
 def borrowed_e0(night) -> bool:
@@ -247,4 +280,6 @@ def failure_warning(method: str, years, error) -> str:
     return (f"{method} partitioning could not fit {years} ({reason}): its GPP and Reco "
             f"({gpp}, {reco}), their daily, monthly and annual sums, uncertainty and 95 % "
             f"intervals and the comparison of the two methods are NaN there; NEE and the "
-            f"{other} method's GPP and Reco are computed as usual")
+            f"{other} method's GPP and Reco are computed as usual, their uncertainty "
+            "without the part from the difference between the methods (uncertainty_parts_"
+            "missing names it)")

@@ -770,6 +770,10 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night, night, day,
         temperature, interval, config, year_keys, night_fits, error_model, form, delay)
     parameters["gapfill_error_model"] = gapfill_model
+    # a method that could not fit has no sums, so no uncertainty of them either
+    unfitted = method_failure.failed_methods(night, day)
+    daily, monthly, annual = (method_failure.blank(table, unfitted)
+                              for table in (daily, monthly, annual))
     annual = annual.join(uncertainty.carbon_accounting_units(annual))
     audit_table = audit.audit_trail(timeseries, year_keys=year_keys)
     counts = screens.counts.copy()
@@ -779,8 +783,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     counts[screening.REASON_CODES[0]] = int((reason == 0).sum())
     warnings.extend(budget_warnings.budget_year_warnings(
         annual, timeseries, year_keys, interval, config, list(_BUDGET_FLUXES.values()),
-        [method for method, fit in (("nighttime", night), ("daytime", day))
-         if method_failure.failed(fit)]))
+        unfitted))
     for text in warnings:
         _warnings.warn(text, FluxpartWarning, stacklevel=2)
     facts = schema.file_metadata(site, interval)
