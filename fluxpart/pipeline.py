@@ -11,7 +11,8 @@ Stages (each a pure function of its own module):
    ``clock_check`` allows it) or a condition a stage cannot run with stops here;
 3. the u* threshold, detected with its bootstrap distribution or fixed (:mod:`fluxpart.ustar`);
 4. gap filling of the drivers, then of NEE after the u* filter (:mod:`fluxpart.gapfill`);
-5. nighttime and daytime partitioning (:mod:`fluxpart.partition`);
+5. nighttime and daytime partitioning (:mod:`fluxpart.partition`); where exactly one
+   method cannot fit, the run goes on with its GPP and Reco NaN (:mod:`fluxpart.method_failure`);
 6. steps 4–5 again for each u* scenario threshold (the threshold's share of uncertainty);
 7. daily, monthly and annual budgets with coverage (:mod:`fluxpart.budget`), the
    daytime/nighttime agreement (:mod:`fluxpart.agreement`), the random error of NEE
@@ -602,7 +603,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     Raises
     ------
     FluxpartError
-        (a subclass) for bad input or settings, or too little data for a method.
+        (a subclass) for bad input or settings, or too little data for both partitioning
+        methods (one that cannot fit leaves its columns NaN, with a warning).
     """
     config = _config(config)
     if not isinstance(site, Site):
