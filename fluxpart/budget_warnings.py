@@ -16,7 +16,7 @@ __all__ = ["budget_year_warnings"]
 
 
 def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_keys,
-                         interval: float, config, fluxes) -> list[str]:
+                         interval: float, config, fluxes, failed=()) -> list[str]:
     """The warnings of each budget year of `annual`.
 
     Parameters
@@ -36,6 +36,10 @@ def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_ke
         ``gapfill_max_window_days``).
     fluxes : list of str
         The annual sums to name where NaN (``nee``, ``gpp_nighttime`` ...).
+    failed : collection of str, optional
+        Partitioning methods (``"nighttime"``, ``"daytime"``) that could not fit: their
+        NaN sums are named by that method's own warning
+        (:func:`fluxpart.method_failure.failure_warning`), not here.
 
     Returns
     -------
@@ -61,12 +65,12 @@ def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_ke
         in_year = keys == key
         if row["records_unfilled"] > 0:
             out.append(_unfilled_warning(year, row, annual, timeseries, in_year, config, fluxes))
-        out.extend(_modelled_sums_missing(year, row, timeseries, in_year, config))
-        out.extend(_uncertainty_parts_missing(year, row, config))
+        out.extend(_modelled_sums_missing(year, row, timeseries, in_year, config, failed))
+        out.extend(_uncertainty_parts_missing(year, row, config, failed))
     return out
 
 
-def _uncertainty_parts_missing(year, row, config) -> list:
+def _uncertainty_parts_missing(year, row, config, failed=()) -> list:
     """Name the parts of the uncertainty a budget year's 95 % intervals leave out.
 
     A part that could not be estimated is NaN and left out of ``X_uncertainty_total``, so
@@ -76,6 +80,10 @@ def _uncertainty_parts_missing(year, row, config) -> list:
     parts = row.get("uncertainty_parts_missing")
     if not isinstance(parts, str) or not parts:
         return []
+    if failed:   # the method-failure warning names the between-method part it lacks
+        parts = ", ".join(part for part in parts.split(", ") if part != "partitioning")
+        if not parts:
+            return []
     causes = []
     if "ustar" in parts.split(", "):
         if config.ustar_method == "fixed":
@@ -113,7 +121,7 @@ def _unfilled_warning(year, row, annual, timeseries, in_year, config, fluxes) ->
             f"{sums} (records_unfilled in annual.parquet)")
 
 
-def _modelled_sums_missing(year, row, timeseries, in_year, config) -> list:
+def _modelled_sums_missing(year, row, timeseries, in_year, config, failed=()) -> list:
     """Name the partitioned sums of a budget year that are NaN for want of a modelled value.
 
     Reco and GPP need their drivers at every record; where a driver stays unfilled (a gap
@@ -124,6 +132,7 @@ def _modelled_sums_missing(year, row, timeseries, in_year, config) -> list:
     names = ["reco_nighttime", "gpp_daytime", "reco_daytime"]
     if np.isfinite(row["nee"]):
         names.insert(1, "gpp_nighttime")
+    names = [name for name in names if name.split("_")[1] not in failed]
     missing = {name: int((in_year & ~np.isfinite(timeseries[name].to_numpy(dtype=float))).sum())
                for name in names if name in row.index and pd.isna(row[name])}
     if not missing:

@@ -262,7 +262,12 @@ class Config:
         is not accepted; 3, Reichstein et al. (2005) (m).
     e0_fallback : float or None
         E0 to use, flagged, when no window is acceptable [K]. ``None`` (default)
-        makes such a year fail with an :class:`~fluxpart.errors.InsufficientDataError`.
+        makes such a year take the E0 of the nearest year of the record that has one
+        (flagged ``"nearest_year"``, warned naming both years; only where the run would
+        otherwise stop for want of it: :func:`fluxpart.partition.nighttime.annual_e0`),
+        and where no year has one the nighttime method fails with an
+        :class:`~fluxpart.errors.InsufficientDataError` (the run goes on with the daytime
+        method alone where that one fits: :mod:`fluxpart.method_failure`).
         The daytime method uses it likewise when none of its night windows gives an E0;
         with ``None`` it then takes the year's nighttime E0 instead of failing, flagged
         ``"fallback"`` in its parameter table and warned about (the two methods then

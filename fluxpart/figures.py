@@ -48,7 +48,8 @@ from .errors import FluxpartError
 from .responses import LASSLOP_VPD0_HPA, light_response, lloyd_taylor
 from .units import CARBON_UNIT, FLUX_UNIT, flux_to_carbon
 
-__all__ = ["FIGURES", "Figure", "Written", "draw_figures", "fill_category", "period_masks"]
+__all__ = ["FIGURES", "Figure", "Written", "draw_figures", "fill_category", "period_masks",
+           "unfitted_methods"]
 
 #: File names of the figures, in page order.
 FIGURES = (
@@ -1342,7 +1343,44 @@ def _period_e0_curves(e0_annual, windows, times, temperature) -> list:
     return curves
 
 
+def unfitted_methods(written) -> list[str]:
+    """The partitioning methods (``"nighttime"``, ``"daytime"``) a run could not fit.
+
+    Such a method's GPP and Reco are NaN at every record of the written time series
+    (:mod:`fluxpart.method_failure`); a folder without the columns names none.
+    """
+    series = written.timeseries
+    out = []
+    for method in ("nighttime", "daytime"):
+        columns = [f"gpp_{method}", f"reco_{method}"]
+        if set(columns) <= set(series.columns) and len(series) and not np.isfinite(
+                series[columns].to_numpy(dtype=float)).any():
+            out.append(method)
+    return out
+
+
+def _unfitted_figure(drawing, name, title, method) -> Figure:
+    """A figure of one method that could not fit: the statement instead of empty axes."""
+    figure = drawing.figure(8.0, 2.0, left=0.02, right=0.98, top=0.9, bottom=0.1)
+    text = (f"The {method} partitioning method could not fit this record: its GPP and Reco "
+            "are not given (the run's warnings name the reason).")
+    _no_data(figure.add_subplot(1, 1, 1), text)
+    return Figure(name, drawing.png(figure), title, text)
+
+
+def _without(figure: Figure, unfitted) -> Figure:
+    """`figure` with its caption saying which method could not fit (drawn without it)."""
+    if not unfitted:
+        return figure
+    return Figure(figure.name, figure.png, figure.title, figure.caption + " " + " ".join(
+        f"The {method} method could not fit this record: its curves and panels are empty."
+        for method in unfitted))
+
+
 def figure_night_respiration(drawing, written, interval) -> Figure:
+    if "nighttime" in unfitted_methods(written):
+        return _unfitted_figure(drawing, "night_respiration.png", "Night respiration and the "
+                                "Lloyd–Taylor fits", "nighttime")
     series = written.timeseries
     driver = _respiration_driver(written)
     temperature_column = _temperature_column(series, driver)
@@ -1587,6 +1625,9 @@ def _light_windows(parameters: pd.DataFrame, states: pd.DataFrame, wanted: int =
 
 
 def figure_light_response(drawing, written) -> Figure:
+    if "daytime" in unfitted_methods(written):
+        return _unfitted_figure(drawing, "light_response.png", "Light-response windows",
+                                "daytime")
     series = written.timeseries
     parameters = written.table("parameters_daytime")
     states = window_status(parameters)
@@ -1709,14 +1750,15 @@ def draw_figures(written: Written, progress=None) -> list[Figure]:
     drawing = Drawing()
     interval = interval_minutes(written.timeseries.index)
     tick = progress if progress is not None else (lambda: None)
+    unfitted = unfitted_methods(written)
     painters = (
-        lambda: figure_daily(drawing, written, interval),
+        lambda: _without(figure_daily(drawing, written, interval), unfitted),
         lambda: figure_cumulative(drawing, written, interval),
         lambda: figure_fill_quality(drawing, written, interval),
-        lambda: figure_heatmaps(drawing, written, interval),
+        lambda: _without(figure_heatmaps(drawing, written, interval), unfitted),
         lambda: figure_clock(drawing, written, interval),
-        lambda: figure_monthly(drawing, written),
-        lambda: figure_diurnal(drawing, written, interval),
+        lambda: _without(figure_monthly(drawing, written), unfitted),
+        lambda: _without(figure_diurnal(drawing, written, interval), unfitted),
         lambda: figure_night_respiration(drawing, written, interval),
         lambda: figure_ustar(drawing, written),
         lambda: figure_light_response(drawing, written),

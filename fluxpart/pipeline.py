@@ -11,7 +11,8 @@ Stages (each a pure function of its own module):
    ``clock_check`` allows it) or a condition a stage cannot run with stops here;
 3. the u* threshold, detected with its bootstrap distribution or fixed (:mod:`fluxpart.ustar`);
 4. gap filling of the drivers, then of NEE after the u* filter (:mod:`fluxpart.gapfill`);
-5. nighttime and daytime partitioning (:mod:`fluxpart.partition`);
+5. nighttime and daytime partitioning (:mod:`fluxpart.partition`); where exactly one
+   method cannot fit, the run goes on with its GPP and Reco NaN (:mod:`fluxpart.method_failure`);
 6. steps 4–5 again for each u* scenario threshold (the threshold's share of uncertainty);
 7. daily, monthly and annual budgets with coverage (:mod:`fluxpart.budget`), the
    daytime/nighttime agreement (:mod:`fluxpart.agreement`), the random error of NEE
@@ -40,6 +41,7 @@ from . import (
     budget_warnings,
     clock,
     gapfill,
+    method_failure,
     preflight,
     schema,
     screening,
@@ -227,11 +229,22 @@ def _chosen_temperature(driver, index, screened, is_night, threshold, config):
     if driver != "auto":
         return driver, None
     too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
-    choice = temperature_choice.choose_respiration_temperature(
-        index, np.where(too_calm, np.nan, screened["nee"].to_numpy()),
-        screened["tair"].to_numpy(),
-        screened["tsoil"].to_numpy() if "tsoil" in screened.columns else None, is_night,
-        **_nighttime_settings(config, screened["rg"].to_numpy(dtype=float)))
+    try:
+        # a year without an E0 of its own takes the nearest year's only where the plain
+        # fits fail (method_failure.first_fit)
+        choice = method_failure.first_fit(
+            lambda nearest_year: temperature_choice.choose_respiration_temperature(
+                index, np.where(too_calm, np.nan, screened["nee"].to_numpy()),
+                screened["tair"].to_numpy(),
+                screened["tsoil"].to_numpy() if "tsoil" in screened.columns else None,
+                is_night, **_nighttime_settings(config, screened["rg"].to_numpy(dtype=float),
+                                                nearest_year)))
+    except InsufficientDataError as error:
+        # the nighttime method cannot fit on air temperature: the run's own fit says why
+        # (and the run goes on with the daytime method where that one fits)
+        return "tair", temperature_choice.TemperatureChoice(
+            "tair", f"no nighttime fit to compare ({error})", {"tair": np.nan, "tsoil": np.nan},
+            0, np.nan, np.nan)
     return choice.driver, choice
 
 
@@ -430,10 +443,12 @@ def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None):
         clearness_tolerance=config.gapfill_clearness_tolerance)
 
 
-def _nighttime_settings(config, rg) -> dict:
+def _nighttime_settings(config, rg, nearest_year=False) -> dict:
     """Keyword settings of :func:`nighttime.partition_nighttime` from `config`, with the
-    measured global radiation `rg` [W m-2] its low-light Rref rule needs."""
-    return {"e0_window_days": config.e0_window_days,
+    measured global radiation `rg` [W m-2] its low-light Rref rule needs, and
+    `nearest_year`: a year without an E0 of its own takes the nearest year's."""
+    extra = {"e0_nearest_year": True} if nearest_year else {}
+    return {**extra, "e0_window_days": config.e0_window_days,
             "e0_window_step_days": config.e0_window_step_days,
             "e0_min_points": config.e0_min_points,
             "e0_min_temperature_range": config.e0_min_temperature_range,
@@ -457,13 +472,19 @@ def _respiration_temperature(table, name, delay, filled=False) -> np.ndarray:
 
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
                         temperature, config, curvature, night_fit=None, central_fill=None,
-                        delay=0):
+                        delay=0, skip=(), nearest_year=False):
     """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
 
     `night_fit`: the temperature choice's nighttime fit on the same measured NEE
     and temperature, reused instead of fitting again. `central_fill`: the central
     run's NEE fill, whose day records a u* scenario shares (below). `delay`:
     records by which the respiration temperature is delayed (the choice's).
+    `skip`: methods not fitted (NaN; those the central run could not fit), and
+    `nearest_year`: the nighttime E0 of a year without one from the nearest year
+    (the central run's choice), for a u* scenario. The central run lets one method
+    that cannot fit be NaN and tries the nearest year's E0 only where the plain fit
+    fails (:mod:`fluxpart.method_failure`). Returns the outcome and the errors of
+    the methods that could not fit.
     """
     too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
     nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
@@ -478,21 +499,36 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
     else:
         filled = _fill_nee(nee_measured, conditions, frame.index, is_night, config)
     temperature_filled = _respiration_temperature(filled_drivers, temperature, delay, True)
-    if night_fit is not None:
-        night = nighttime.apply_fit(night_fit, filled["value"].to_numpy(), temperature_filled)
-    else:
-        night = nighttime.partition_nighttime(
+
+    def fit_nighttime(borrow):
+        if night_fit is not None:
+            return nighttime.apply_fit(night_fit, filled["value"].to_numpy(), temperature_filled)
+        return nighttime.partition_nighttime(
             frame.index, nee_measured, filled["value"].to_numpy(),
             _respiration_temperature(screened, temperature, delay), temperature_filled,
             is_night, respiration_driver=temperature,
-            **_nighttime_settings(config, screened["rg"].to_numpy(dtype=float)))
+            **_nighttime_settings(config, screened["rg"].to_numpy(dtype=float), borrow))
+
+    central = central_fill is None
+    night, day, errors = method_failure.partition_both(
+        (lambda: method_failure.first_fit(fit_nighttime)) if central
+        else (lambda: fit_nighttime(nearest_year)),
+        lambda night: _fit_daytime(frame, nee_measured, screened, filled_drivers,
+                                   temperature_filled, is_night, config, curvature, night),
+        len(frame), temperature, skip=skip, degrade=central)
+    return too_calm, nee_measured, filled, night, day, errors
+
+
+def _fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_filled, is_night,
+                 config, curvature, night):
+    """The daytime method with the configured settings (`night`: the nighttime result)."""
     # the daytime method estimates E0 from its own night windows; where none has the
     # temperature range for it (e.g. a damped soil temperature), the nighttime method's
     # E0 stands in, flagged "fallback" in the daytime parameter table and warned about
     day_e0_fallback = config.e0_fallback
     if day_e0_fallback is None and np.isfinite(night.e0).any():
         day_e0_fallback = float(np.nanmedian(night.e0))
-    day = daytime.partition_daytime(
+    return daytime.partition_daytime(
         frame.index, nee_measured, filled_drivers["rg_filled"].to_numpy(),
         filled_drivers["vpd_filled"].to_numpy(), temperature_filled, is_night,
         random_error=_daytime_error_model(frame.index, nee_measured, screened, config),
@@ -507,7 +543,6 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
         rref_max_relative_error=config.daytime_rref_max_relative_error,
         night_in_fit=config.daytime_night_in_fit,
         curvature=curvature)
-    return too_calm, nee_measured, filled, night, day
 
 
 def _daytime_error_model(index, nee_measured, screened, config):
@@ -568,7 +603,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     Raises
     ------
     FluxpartError
-        (a subclass) for bad input or settings, or too little data for a method.
+        (a subclass) for bad input or settings, or too little data for both partitioning
+        methods (one that cannot fit leaves its columns NaN, with a warning).
     """
     config = _config(config)
     if not isinstance(site, Site):
@@ -659,7 +695,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         notes = []
         return _threshold_runs((frame, screened_now, filled_drivers, conditions, is_night),
                                runs, temperature, config, night_fits.get(temperature), delay,
-                               notes, report), notes
+                               notes, report, year_keys), notes
 
     outcomes, run_warnings = all_runs(screened, step)
     # the release of CO2 stored on calm nights, seen in the mornings after them
@@ -736,6 +772,10 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night, night, day,
         temperature, interval, config, year_keys, night_fits, error_model, form, delay)
     parameters["gapfill_error_model"] = gapfill_model
+    # a method that could not fit has no sums, so no uncertainty of them either
+    unfitted = method_failure.failed_methods(night, day)
+    daily, monthly, annual = (method_failure.blank(table, unfitted)
+                              for table in (daily, monthly, annual))
     annual = annual.join(uncertainty.carbon_accounting_units(annual))
     audit_table = audit.audit_trail(timeseries, year_keys=year_keys)
     counts = screens.counts.copy()
@@ -744,7 +784,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         (reason == _REASON_MORNING_RELEASE).sum())
     counts[screening.REASON_CODES[0]] = int((reason == 0).sum())
     warnings.extend(budget_warnings.budget_year_warnings(
-        annual, timeseries, year_keys, interval, config, list(_BUDGET_FLUXES.values())))
+        annual, timeseries, year_keys, interval, config, list(_BUDGET_FLUXES.values()),
+        unfitted))
     for text in warnings:
         _warnings.warn(text, FluxpartWarning, stacklevel=2)
     facts = schema.file_metadata(site, interval)
@@ -773,23 +814,34 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                                     "checked": uncertainty.CALIBRATION_CHECK}})
 
 
-def _threshold_runs(arguments, runs, temperature, config, night_fit, delay, warnings, step):
+def _threshold_runs(arguments, runs, temperature, config, night_fit, delay, warnings, step,
+                    year_keys=()):
     """Fill and partition at each u* run's thresholds; the outcomes by run name.
 
     The central run comes first (it may reuse `night_fit`, the temperature choice's
     nighttime fit on the same measured NEE); the scenarios share its NEE fill of the
     day records and its light-response curvature. A scenario with too little data is
-    left out with a warning appended to `warnings`.
+    left out with a warning appended to `warnings`. A method the central run could not
+    fit is NaN in every run, named in `warnings` with the budget years `year_keys`.
     """
     outcomes = {}
     curvature = config.daytime_curvature
+    skip, borrowed = (), False
     for name, threshold in runs.items():
         try:
-            outcomes[name] = _fill_and_partition(
+            *outcome, errors = _fill_and_partition(
                 *arguments, threshold, temperature, config, curvature,
                 night_fit if name == "central" else None,
-                None if name == "central" else outcomes["central"][2], delay)
+                None if name == "central" else outcomes["central"][2], delay, skip, borrowed)
+            outcomes[name] = tuple(outcome)
             if name == "central":
+                skip = tuple(errors)
+                borrowed = method_failure.borrowed_e0(outcome[3])
+                warnings.extend(nighttime.nearest_year_notes(outcome[3].e0_annual, temperature))
+                warnings.extend(method_failure.failure_warning(method, np.unique(year_keys),
+                                                               error)
+                                for method, error in errors.items())
+            if name == "central" and "daytime" not in skip:
                 # the u* scenarios keep the central run's light-response curvature, so
                 # that their spread is the u* threshold's alone
                 day_parameters = outcomes["central"][4].parameters
@@ -854,12 +906,15 @@ def _respiration_form(frame, filled_drivers, central, is_night, temperature, con
     """Both respiration forms' nighttime Reco on the central run, averaged as configured."""
     _, nee_measured, filled, night, _ = central
     try:
+        if method_failure.failed(night):
+            raise InsufficientDataError("the nighttime method could not fit")
         exponential = respiration_form.exponential_reco(
             frame.index, nee_measured, filled["value"].to_numpy(dtype=float),
             _respiration_temperature(frame, temperature, delay),
             _respiration_temperature(filled_drivers, temperature, delay, True), is_night,
             respiration_driver=temperature,
-            **_nighttime_settings(config, frame["rg"].to_numpy(dtype=float)))
+            **_nighttime_settings(config, frame["rg"].to_numpy(dtype=float),
+                                  method_failure.borrowed_e0(night)))
     except FluxpartError:
         exponential = None
     weight = 0.0 if exponential is None else uncertainty.driver_weight(
@@ -901,7 +956,8 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                                 "reco_daytime": d.reco}, index=index)
             for name, (_, _, filled, n, d) in outcomes.items()}
     nee_filled = timeseries["nee_filled"].to_numpy(dtype=float)
-    settings = _nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float))
+    settings = _nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float),
+                                   method_failure.borrowed_e0(night))
 
     def refit(fit, driver):
         """Reco of `fit` (partition_nighttime's arguments) on `driver`; None if it fails."""
@@ -914,7 +970,9 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
 
     other = {"tair": "tsoil", "tsoil": "tair"}[temperature]
     other_reco = None
-    if delay and "tair_undelayed" in night_fits:
+    if method_failure.failed(night):
+        pass                     # no nighttime Reco to compare the other driver's with
+    elif delay and "tair_undelayed" in night_fits:
         # the other candidate of a delayed air temperature is the undelayed one
         try:
             other_reco = nighttime.apply_fit(

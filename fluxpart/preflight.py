@@ -22,10 +22,11 @@ a required variable constant              its stages (see ``_CONSTANT``)      NE
                                                                               u*
 u* with a year's median of a wind speed   u* filter                           yes
 record shorter than one E0 window, or no  nighttime partitioning (E0)         unless
-E0 window with enough night records                                           e0_fallback
-spanning enough temperature
-no Rref window with enough night records  nighttime partitioning (Rref)       yes
-no light-response window with enough      daytime partitioning                yes
+E0 window with enough night records                                           e0_fallback,
+spanning enough temperature                                                   or another
+                                                                              year has one
+no Rref window with enough night records  nighttime partitioning (Rref)       yes (1)
+no light-response window with enough      daytime partitioning                yes (1)
 measured daytime records
 no season with enough night records for   u* threshold (fixed fall-back)      no
 the u* detector
@@ -46,6 +47,9 @@ Rg above the night threshold in most      night mask                          wh
 records with the sun down                                                     nighttime
                                                                               stages fail
 ========================================  ==================================  =========
+
+(1) Where it is the only fatal finding, the run goes on with the other partitioning
+method alone (:mod:`fluxpart.method_failure`), and the finding is not fatal.
 """
 
 from __future__ import annotations
@@ -464,14 +468,40 @@ def _e0(days, index, usable, temperature, config) -> list:
         most = int(counts[mine].max()) if mine.any() else 0
         widest = float(spans[mine].max()) if mine.any() else 0.0
         fallback = config.e0_fallback is not None
+        # since 0.19.0 a year without an E0 of its own takes the nearest year's where
+        # another year of the record has one (nighttime.annual_e0, nearest_year)
+        nearest = not fallback and bool(good[~mine].any())
         findings.append(Finding("nighttime partitioning (E0)", (
             f"{year}: no {config.e0_window_days:g}-day window has {config.e0_min_points} "
             f"measured night records spanning {config.e0_min_temperature_range:g} K (at most "
             f"{most} records, widest temperature span {widest:.2f} K); "
             + (f"the fall-back e0_fallback = {config.e0_fallback:g} K would be used"
-               if fallback else "set [processing] e0_fallback (a fixed E0 in K) or supply a "
-               "longer record with measured night NEE")), not fallback))
+               if fallback else "the E0 of the nearest year with one would be used (set "
+               "[processing] e0_fallback for a fixed E0 in K instead)" if nearest
+               else "set [processing] e0_fallback (a fixed E0 in K) or supply a "
+               "longer record with measured night NEE")), not (fallback or nearest)))
     return findings
+
+
+#: Stage of a fatal finding that stops one partitioning method only -> the method. Where
+#: every fatal finding is of one of them, the run goes on with the other method
+#: (:mod:`fluxpart.method_failure`). A nighttime E0 missing in every year is not among
+#: them: the daytime method's E0 rests on the same night records (its fall-back is the
+#: nighttime E0), so both stop.
+_ONE_METHOD = {"nighttime partitioning (Rref)": "nighttime",
+               "daytime partitioning (light response)": "daytime"}
+
+
+def _one_method(findings: list) -> list:
+    """The findings, a fatal one that stops one partitioning method alone made non-fatal."""
+    fatal = {f.stage for f in findings if f.fatal}
+    if len(fatal) != 1 or not fatal <= set(_ONE_METHOD):
+        return findings
+    method = _ONE_METHOD[next(iter(fatal))]
+    other = {"nighttime": "daytime", "daytime": "nighttime"}[method]
+    return [Finding(f.stage, f"{f.message}; the run goes on with the {other} method alone "
+                    f"(gpp_{method} and reco_{method} NaN)", False) if f.fatal else f
+            for f in findings]
 
 
 def _rref(days, usable, config, without_ustar: int = 0) -> list:
@@ -667,4 +697,4 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     if dark and any(f.fatal and f.stage.startswith("nighttime") for f in findings):
         # the cause of the nighttime stages' failure: named first in run's error
         dark = [Finding(dark[0].stage, dark[0].message, True)]
-    return sorted(dark + findings, key=lambda f: not f.fatal)
+    return sorted(_one_method(dark + findings), key=lambda f: not f.fatal)

@@ -52,6 +52,7 @@ from .figures import (
     draw_figures,
     interval_minutes,
     period_masks,
+    unfitted_methods,
     window_status,
 )
 from .manifest import CAUTION
@@ -249,6 +250,11 @@ def _summary_card(written: Written) -> tuple[str, bool]:
     annual = written.annual
     periods = period_masks(written)
     cards, combined_used = [], False
+    # a method that could not fit (fluxpart.method_failure): said so, not shown as numbers
+    unfitted = "".join(
+        f'<p class="small" data-summary="unfitted" data-method="{method}">The {method} '
+        "partitioning method could not fit this record: its GPP and Reco are not given "
+        "(n/a; the warnings below name the reason).</p>" for method in unfitted_methods(written))
     for label, (_, first, last, _, partial) in periods.items():
         row = annual.loc[label]
         nee = float(row["nee"]) if _finite(row.get("nee")) else np.nan
@@ -332,7 +338,7 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                 + ").</li>")
         cards.append(f'<div class="card" data-period="{_e(label)}"><h3>'
                      f"{_period_heading(label, first, last, partial)}</h3>{headline}"
-                     f"{flux_table}<ul>{''.join(facts)}</ul></div>")
+                     f"{flux_table}{unfitted}<ul>{''.join(facts)}</ul></div>")
     index = written.timeseries.index
     record = (f'<p class="record-line">Record {index[0]:%d %b %Y} – {index[-1]:%d %b %Y}, '
               f"{interval_minutes(index)}-minute records. <strong>Clock check:</strong> "

@@ -5,6 +5,11 @@ whose temperature response follows Lloyd & Taylor (1994). Its temperature
 sensitivity E0 is fitted in short windows of measured night data and combined
 into one value per calendar year; with E0 fixed, the reference respiration Rref
 is fitted in consecutive 4-day windows and interpolated to every record.
+A calendar year too short or too poor in night data for an E0 of its own (a stub of
+a few days at the record's edge) can take the E0 of the nearest year of the same
+record that has one (``e0_nearest_year``; :func:`annual_e0`, Notes). The pipeline
+asks for this only where the run would otherwise stop for want of that E0, so a
+record whose years all have their own E0 is partitioned as before.
 Respiration is then the Lloyd–Taylor equation on the gap-filled temperature,
 and gross primary production is respiration minus the gap-filled NEE.
 
@@ -55,6 +60,7 @@ __all__ = [
     "fit_e0_joint",
     "fit_e0_windows",
     "fit_rref_windows",
+    "nearest_year_notes",
     "partition_nighttime",
     "rref_per_record",
 ]
@@ -778,7 +784,7 @@ def _profile_e0(flux, term, starts, grid, max_relative):
 # Annual E0
 # --------------------------------------------------------------------------- #
 def annual_e0(windows: pd.DataFrame, *, e0_best_windows=3, e0_fallback=None,
-              night_records=None, joint=None) -> pd.DataFrame:
+              night_records=None, joint=None, nearest_year=False) -> pd.DataFrame:
     """E0 of each calendar year: the joint fit, else the best accepted E0 windows.
 
     Parameters
@@ -798,6 +804,12 @@ def annual_e0(windows: pd.DataFrame, *, e0_best_windows=3, e0_fallback=None,
     joint : pandas.DataFrame, optional
         Output of :func:`fit_e0_joint`. A year whose joint fit is accepted takes
         its E0 (``source = "joint"``); the other years fall back to the windows.
+    nearest_year : bool, optional
+        When True and `e0_fallback` is None, a year without an E0 of its own (no
+        accepted joint fit and no accepted window) takes the E0 of the nearest year
+        that has one (the earlier on a tie), ``source = "nearest_year"``; its
+        ``e0_se`` is the donor's and its ``windows_used`` 0. Default False: such a
+        year is an error, as before (see Notes).
 
     Returns
     -------
@@ -806,15 +818,17 @@ def annual_e0(windows: pd.DataFrame, *, e0_best_windows=3, e0_fallback=None,
         for a fall-back), ``windows_accepted``, ``windows_used``,
         ``windows_tried`` (candidate windows of the year), ``night_records``
         (``-1`` when not given) and ``source`` (``"joint"``, ``"fitted"`` for
-        the mean of the best windows, or ``"fallback"``). For a joint year
+        the mean of the best windows, ``"fallback"``, or ``"nearest_year"`` for
+        an E0 taken from another year, see `nearest_year`). For a joint year
         ``windows_used`` counts the Rref windows of the joint fit.
 
     Raises
     ------
     InsufficientDataError
-        If a year has no accepted window and `e0_fallback` is None; the message
-        names the year, its night records, the windows tried and why they were
-        rejected, and the setting ``e0_fallback``.
+        If a year has no accepted window and `e0_fallback` is None (and, with
+        `nearest_year`, no other year has an E0 of its own); the message names the
+        year, its night records, the windows tried and why they were rejected, and
+        the setting ``e0_fallback``.
 
     Notes
     -----
@@ -828,6 +842,17 @@ def annual_e0(windows: pd.DataFrame, *, e0_best_windows=3, e0_fallback=None,
     (m); its standard error is ``sqrt(sum(se²)) / k``, the standard error of that
     mean if the windows were independent. Overlapping windows share records, so
     this understates the uncertainty somewhat.
+
+    Nearest year (`nearest_year`, our choice): E0 describes how the respiration of
+    one ecosystem responds to temperature; within a record of one site it changes
+    with the seasons' conditions but is a property of the same soil and vegetation.
+    A year that is too short (a stub of a few days at the record's edge, e.g. 1–9
+    January after a full year) or too poor in night data to estimate its own E0 is
+    therefore closer to its neighbouring year's E0 than to a value typical of
+    ecosystems in general (``e0_fallback``), and is named with its donor in the
+    run's warnings (:func:`nearest_year_notes`). The donor's standard error
+    understates the borrowed year's E0 uncertainty by the year-to-year change
+    that is not known.
 
     References
     ----------
@@ -847,7 +872,7 @@ def annual_e0(windows: pd.DataFrame, *, e0_best_windows=3, e0_fallback=None,
     else:
         counts = {int(y): int(n) for y, n in night_records.items()}
         years = sorted(counts)
-    rows = []
+    rows, lacking = [], {}
     for year in years:
         candidates = windows[windows["year"] == year]
         if candidates.empty:
@@ -861,6 +886,9 @@ def annual_e0(windows: pd.DataFrame, *, e0_best_windows=3, e0_fallback=None,
                          counts[year], "joint"))
             continue
         if accepted.empty:
+            if e0_fallback is None and nearest_year:
+                lacking[year] = candidates         # decided once every year is known
+                continue
             if e0_fallback is None:
                 raise InsufficientDataError(_no_e0_message(year, counts[year], candidates))
             rows.append((year, e0_fallback, np.nan, 0, 0, len(candidates), counts[year],
@@ -872,10 +900,65 @@ def annual_e0(windows: pd.DataFrame, *, e0_best_windows=3, e0_fallback=None,
         e0_se = float(np.sqrt(np.sum(chosen["e0_se"].to_numpy() ** 2)) / k)
         rows.append((year, e0, e0_se, len(accepted), k, len(candidates), counts[year],
                      "fitted"))
+    if lacking:
+        rows = sorted(rows + _nearest_year_rows(rows, lacking, counts))
     return _year_table(rows, {"year": "int64", "e0": "float64", "e0_se": "float64",
                               "windows_accepted": "int64", "windows_used": "int64",
                               "windows_tried": "int64", "night_records": "int64",
                               "source": "str"})
+
+
+def _nearest_year_rows(rows: list, lacking: dict, counts: dict) -> list:
+    """Rows of the years in `lacking` (year -> its candidate windows), each with the E0
+    and standard error of the nearest year of `rows` (the earlier on a tie); raises as
+    :func:`annual_e0` does where `rows` is empty."""
+    if not rows:
+        year = min(lacking)
+        raise InsufficientDataError(_no_e0_message(year, counts[year], lacking[year]))
+    own = {row[0]: row for row in rows}
+    donors = np.array(sorted(own), dtype=np.int64)
+    out = []
+    for year, candidates in lacking.items():
+        distance = np.abs(donors - year)
+        donor = own[int(donors[np.flatnonzero(distance == distance.min())[0]])]
+        out.append((year, donor[1], donor[2], 0, 0, len(candidates), counts[year],
+                    "nearest_year"))
+    return out
+
+
+def nearest_year_notes(e0_annual: pd.DataFrame, respiration_driver: str) -> list:
+    """Warnings naming each year whose E0 was taken from another year, and that year.
+
+    Parameters
+    ----------
+    e0_annual : pandas.DataFrame
+        Output of :func:`annual_e0` (``source`` ``"nearest_year"`` marks a borrowed E0).
+    respiration_driver : str
+        Name of the driving temperature, for the text.
+
+    Returns
+    -------
+    list of str
+        One text per borrowed year; empty where none was borrowed.
+    """
+    if "source" not in e0_annual.columns:
+        return []
+    own = e0_annual[~e0_annual["source"].isin(["nearest_year"])]
+    notes = []
+    for year, row in e0_annual[e0_annual["source"] == "nearest_year"].iterrows():
+        # the donor: the nearest year with its own E0 (the earlier on a tie), as chosen
+        donors = np.asarray(own.index, dtype=np.int64)
+        distance = np.abs(donors - int(year))
+        donor = int(donors[np.flatnonzero(distance == distance.min())[0]])
+        records = int(row["night_records"])
+        notes.append(
+            f"nighttime partitioning: {year} is too short or has too few measured night "
+            f"records ({records if records >= 0 else 'an unknown number of'} usable, "
+            f"{int(row['windows_tried'])} E0 windows tried, none accepted) to estimate its "
+            f"own temperature sensitivity on {respiration_driver}: E0 of {donor}, the "
+            f"nearest year with one ({float(row['e0']):.0f} K), was used for {year}, "
+            "flagged 'nearest_year' in the nighttime E0 table")
+    return notes
 
 
 def _no_e0_message(year: int, night_records: int, candidates: pd.DataFrame) -> str:
@@ -1109,7 +1192,7 @@ def partition_nighttime(index, nee_measured, nee_filled, temperature_measured,
                         e0_max_relative_error=0.5, e0_best_windows=3, e0_fallback=None,
                         rref_window_days=4.0, rref_min_points=6,
                         respiration_driver="tair", e0_method="joint", rg=None,
-                        rref_low_light_rg=0.0) -> NighttimeResult:
+                        rref_low_light_rg=0.0, e0_nearest_year=False) -> NighttimeResult:
     """Partition NEE into Reco and GPP by the nighttime method of Reichstein et al. (2005).
 
     Parameters
@@ -1148,6 +1231,9 @@ e0_bounds, e0_max_relative_error
         Rg below which a window without enough night records fits Rref to its
         low-light NEE [W m-2]; 0 (default here) switches the rule off. See
         :func:`fit_rref_windows`.
+    e0_nearest_year : bool, optional
+        A year without an E0 of its own takes the nearest year's (``nearest_year``
+        of :func:`annual_e0`); default False.
 
     Returns
     -------
@@ -1218,7 +1304,8 @@ e0_bounds, e0_max_relative_error
                              e0_window_days=e0_window_days, e0_min_points=e0_min_points,
                              e0_bounds=e0_bounds, e0_max_relative_error=e0_max_relative_error)
     e0_annual = annual_e0(windows, e0_best_windows=e0_best_windows, e0_fallback=e0_fallback,
-                          night_records=night_records, joint=joint)
+                          night_records=night_records, joint=joint,
+                          nearest_year=e0_nearest_year)
     e0 = e0_annual["e0"].reindex(years).to_numpy(dtype=float)
     rref_windows = fit_rref_windows(index, nee_measured, temperature_measured, is_night, e0,
                                     rref_window_days=rref_window_days,
