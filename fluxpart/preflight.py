@@ -36,6 +36,10 @@ a variable repeating one value for days   input (stuck sensor)                no
 (Rg: with the sun up)
 a day or more of records repeating        input (repeated records)            no
 earlier ones in every variable
+soil temperature swinging more than the   input (tair, tsoil)                 no
+air (columns swapped)
+NEE changing with Rg whole records        input (nee)                         no
+earlier or later (column shifted)
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no
@@ -55,6 +59,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from .column_faults import nee_lag, swapped_temperatures
 from .gapfill import QUALITY_A_WINDOW_DAYS
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
@@ -276,6 +281,29 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
             f"records{sun}){more}: a stuck, dead or disconnected sensor (or a placeholder "
             "value) reads like this, and the values would enter as measured; mark them "
             "missing in a copy of the file"), False))
+    return findings
+
+
+def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
+                   sources=None) -> list:
+    """Air and soil temperature swapped, NEE shifted against Rg (:mod:`.column_faults`)."""
+    findings = []
+    names = {**{name: name for name in screened.columns}, **(sources or {})}
+    if {"tair", "tsoil"} <= set(screened.columns):
+        index = pd.DatetimeIndex(screened.index)
+        offset = int(round((index[0] - index[0].normalize()) / pd.Timedelta(
+            minutes=interval_minutes))) if len(index) else 0
+        text = swapped_temperatures(screened["tair"].to_numpy(dtype=float),
+                                    screened["tsoil"].to_numpy(dtype=float),
+                                    interval_minutes, offset, names)
+        if text:
+            findings.append(Finding("input (tair, tsoil)", text, False))
+    if {"nee", "rg"} <= set(screened.columns):
+        text = nee_lag(screened["nee"].to_numpy(dtype=float),
+                       screened["rg"].to_numpy(dtype=float), potential, interval_minutes,
+                       names)
+        if text:
+            findings.append(Finding("input (nee)", text, False))
     return findings
 
 
@@ -605,6 +633,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         findings += _stuck(frame, potential, interval_minutes)
         repeated = _repeated_records(frame, interval_minutes)
         findings += repeated or _repeated_nee(frame, interval_minutes)
+        findings += _column_faults(screened, potential, interval_minutes, sources)
     days = ((index - index[0].normalize()) / pd.Timedelta(days=1)).to_numpy()
     nee = screened["nee"].to_numpy(dtype=float)
     temperature = (screened[temperature_name].to_numpy(dtype=float)

@@ -1,0 +1,221 @@
+"""Columns that pass every range but hold the wrong quantity or the wrong record.
+
+Two mapping faults that no plausible range can see, found by physics the true
+columns must obey:
+
+* air and soil temperature swapped (:func:`swapped_temperatures`): heat conduction
+  damps the diurnal cycle of the soil with depth, so the soil column's days swing
+  less than the air's;
+* NEE shifted by whole records against the drivers (:func:`nee_lag`): photosynthesis
+  answers a change of light within minutes, so a cloud's change of Rg and the change
+  of NEE it causes fall into the same record.
+
+Both return a one-line message (the caller's warning) or None. Both only warn: the
+physics leaves rare true records on the far side of each criterion (see each
+function's Notes), and a refused valid record is worse than a warned wrong one.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+__all__ = ["SOIL_RANGE_RATIO", "nee_lag", "swapped_temperatures"]
+
+#: Ratio of the soil column's to the air column's median daily temperature range above
+#: which the columns are named as swapped [1]. Heat conduction damps the diurnal
+#: amplitude with depth z as exp(-z / d), damping depth d = sqrt(2 kappa / omega) about
+#: 0.1 m for typical soils (thermal diffusivity kappa 3-8e-7 m2 s-1; Hillel 1998,
+#: Environmental Soil Physics, ch. 12 (m); Campbell & Norman 1998, An Introduction to
+#: Environmental Biophysics, ch. 8 (m)). A probe at the shallowest usual depth, 2 cm
+#: (common practice), keeps at most exp(-0.2) = 0.82 of the surface's swing, so its
+#: range exceeds the air's 1.5 times only where the surface swings 1.8 times the air:
+#: bare, dry, sunlit soil (m), not the vegetated surfaces towers stand over. Our choice.
+SOIL_RANGE_RATIO = 1.5
+#: The soil's median daily range must also exceed the air's by this many K: probes read
+#: to about 0.1 K (m), so a ratio of a few resolution steps proves nothing. Our choice.
+_SOIL_RANGE_EXCESS = 1.0
+#: Days with two thirds of both temperatures present needed to judge: two weeks, so a
+#: few days of weather (a calm, clear spell) do not decide. Our choice.
+_MIN_DAYS = 14
+#: The widest shift looked for [min]: two hours of records either way.
+_MAX_SHIFT_MINUTES = 120
+#: Standard errors by which the Fisher z of the best shifted correlation must exceed
+#: that of the unshifted one (3: the conventional threshold of a clear difference;
+#: the standard error sqrt(2 / (n - 3)) of two independent correlations is an upper
+#: bound for two correlations of the same records, which share most of their noise).
+_LAG_STANDARD_ERRORS = 3.0
+#: Minimum correlation of the Rg and NEE changes at the best shift: below it the NEE
+#: noise hides the light response and no shift can be told. Our choice.
+_MIN_CORRELATION = 0.1
+_MIN_PAIRS = 500
+
+
+def _daily_ranges(values: np.ndarray, per_day: int, usable: np.ndarray) -> np.ndarray:
+    """Max minus min of each whole day (calendar rows) where `usable`."""
+    days = values.size // per_day
+    grid = values[:days * per_day].reshape(days, per_day)
+    with np.errstate(invalid="ignore"):
+        return (np.nanmax(grid[usable], axis=1) - np.nanmin(grid[usable], axis=1))
+
+
+def swapped_temperatures(tair, tsoil, interval_minutes: float, first_offset: int = 0,
+                         columns=None) -> str | None:
+    """A message where the soil column swings more than the air column, or None.
+
+    Parameters
+    ----------
+    tair, tsoil : array_like
+        Air and soil temperature of each record [°C] (NaN = missing), one length.
+    interval_minutes : float
+        Record interval [min].
+    first_offset : int, optional
+        Records from the first record back to the start of its day, so that days are
+        calendar days (0 where the record starts at midnight).
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where the ranges fit, or fewer than 14 days have two
+        thirds of both temperatures.
+
+    Notes
+    -----
+    The median over days of each column's daily range (maximum minus minimum) is
+    compared. A soil probe at depth z keeps exp(-z / d) of the surface's diurnal
+    amplitude, d about 0.1 m (see :data:`SOIL_RANGE_RATIO`); where the soil column's
+    median range exceeds the air's 1.5 times and by more than 1 K, the two columns are
+    named as likely swapped. Only a probe at the surface of bare, dry soil swings so
+    much, so this only warns.
+
+    References
+    ----------
+    Hillel, D. (1998). Environmental Soil Physics. Academic Press, ch. 12 (m).
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 8 (m).
+    """
+    tair = np.asarray(tair, dtype=float)
+    tsoil = np.asarray(tsoil, dtype=float)
+    per_day = int(round(1440.0 / interval_minutes))
+    if per_day < 4 or tair.size != tsoil.size:
+        return None
+    pad = np.full(int(first_offset) % per_day, np.nan)
+    air, soil = np.concatenate([pad, tair]), np.concatenate([pad, tsoil])
+    both = np.isfinite(air) & np.isfinite(soil)
+    days = both.size // per_day
+    usable = both[:days * per_day].reshape(days, per_day).sum(axis=1) >= (2 * per_day) // 3
+    if usable.sum() < _MIN_DAYS:
+        return None
+    air, soil = np.where(both, air, np.nan), np.where(both, soil, np.nan)
+    air_range = float(np.median(_daily_ranges(air, per_day, usable)))
+    soil_range = float(np.median(_daily_ranges(soil, per_day, usable)))
+    if not (soil_range > SOIL_RANGE_RATIO * air_range
+            and soil_range - air_range > _SOIL_RANGE_EXCESS):
+        return None
+    names = columns or {}
+    air_column, soil_column = names.get("tair", "tair"), names.get("tsoil", "tsoil")
+    return (f"soil temperature (column {soil_column!r}) swings a median {soil_range:.1f} K "
+            f"a day, the air temperature (column {air_column!r}) {air_range:.1f} K, over "
+            f"{int(usable.sum())} days: heat conduction damps the soil's daily cycle with "
+            "depth (to exp(-z / 0.1 m) of the surface's), so a soil swinging more than the "
+            "air is a probe at the surface of bare, dry soil or, far more often, the two "
+            "columns swapped: if so, exchange tair and tsoil in [input.columns]")
+
+
+def _correlation(a: np.ndarray, b: np.ndarray) -> tuple[float, int]:
+    ok = np.isfinite(a) & np.isfinite(b)
+    count = int(ok.sum())
+    if count < _MIN_PAIRS:
+        return math.nan, count
+    x, y = a[ok] - a[ok].mean(), b[ok] - b[ok].mean()
+    scale = math.sqrt(float(x @ x) * float(y @ y))
+    return (float(x @ y) / scale if scale > 0 else math.nan), count
+
+
+def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | None:
+    """A message where NEE follows Rg by whole records, or None.
+
+    Parameters
+    ----------
+    nee : array_like
+        NEE of each record [µmol m-2 s-1] (NaN = missing or rejected).
+    rg : array_like
+        Global radiation of each record [W m-2].
+    potential : array_like
+        Potential radiation of each record [W m-2]; only changes between two records
+        with the sun up count.
+    interval_minutes : float
+        Record interval [min].
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where the changes of NEE and Rg of the same record
+        correlate best (or too few sunlit pairs, or too weak a correlation to tell).
+
+    Notes
+    -----
+    Leaf photosynthesis follows a change of light within seconds to minutes (its
+    light reactions at once, Rubisco activation and stomata within minutes; Lambers,
+    Chapin & Pons 2008, Plant Physiological Ecology, ch. 2 (m)), and the tower sees
+    the flux of its footprint within a minute or two of transport, both far shorter
+    than a 30- or 60-minute record. The change of NEE from one record to the next
+    therefore correlates (negatively: more light, more uptake) with the change of Rg
+    of the same records more than with that of records before or after; a passing
+    cloud moves both at once. Where the correlation with Rg changes ``k`` records
+    earlier or later is clearly stronger (its Fisher z larger by 3 standard errors,
+    sqrt(2 / (n - 3)) each, within two hours either way), the NEE column is named as
+    shifted: an end-stamped flux file joined with a start-stamped weather file reads
+    like this. First differences leave out the smooth diurnal course, whose
+    afternoon depression (VPD) would pull a lag of the raw series.
+
+    References
+    ----------
+    Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
+    2nd ed. Springer, ch. 2 (m).
+    """
+    nee = np.asarray(nee, dtype=float)
+    rg = np.asarray(rg, dtype=float)
+    potential = np.asarray(potential, dtype=float)
+    if nee.size < 3 or nee.size != rg.size or interval_minutes <= 0:
+        return None
+    d_nee, d_rg = np.diff(nee), np.diff(rg)
+    sunlit = (potential[1:] > 0) & (potential[:-1] > 0)
+    d_rg = np.where(sunlit, d_rg, np.nan)
+    most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
+    scores = {}
+    for k in range(-most, most + 1):
+        # NEE change of record t + k against the Rg change of record t
+        if k >= 0:
+            a, b = d_nee[k:], d_rg[:d_rg.size - k]
+        else:
+            a, b = d_nee[:k], d_rg[-k:]
+        r, count = _correlation(a, b)
+        scores[k] = (-r, count)
+    if not all(math.isfinite(v) for v, _ in scores.values()):
+        return None
+    best = max(scores, key=lambda k: scores[k][0])
+    strength, count = scores[best]
+    if best == 0 or strength < _MIN_CORRELATION:
+        return None
+    z_best = math.atanh(min(strength, 0.999999))
+    z_zero = math.atanh(max(min(scores[0][0], 0.999999), -0.999999))
+    error = math.sqrt(2.0 / (min(count, scores[0][1]) - 3))
+    if z_best - z_zero <= _LAG_STANDARD_ERRORS * error:
+        return None
+    names = columns or {}
+    minutes = abs(best) * interval_minutes
+    later = "later" if best > 0 else "earlier"
+    return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
+            f"{names.get('rg', 'rg')!r}) {abs(best)} record(s) ({minutes:g} min) {later} "
+            f"than the same record (correlation of the sunlit changes {strength:.2f} there, "
+            f"{scores[0][0]:.2f} in the same record, {(z_best - z_zero) / error:.0f} "
+            "standard errors apart): photosynthesis follows light within minutes, so the "
+            f"NEE column looks shifted by {abs(best)} record(s) against the drivers (a "
+            "flux file stamped at interval ends joined with a weather file stamped at "
+            "starts reads like this); align the columns in a copy of the file")
