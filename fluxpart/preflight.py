@@ -124,6 +124,14 @@ _STUCK_SUN_UP = 200.0
 # resolution then repeats -0.1 or -0.2 as naturally as 0. A soil value this close to 0
 # is not called stuck.
 _ZERO_CURTAIN = 0.5
+# ... unless the run begins or ends with a jump of more than this [K] from the record
+# beside it: conduction brings a soil to its freezing point gradually. At depth z the
+# daily cycle of amplitude A0 exp(-z / d) (d about 0.1 m; Campbell & Norman 1998, ch. 8
+# (m)) changes at most A0 exp(-z / d) 2 pi / 24 h, about 4 K an hour at 2 cm under a bare
+# surface swinging 20 K (m), so a soil at 15 °C one record and 0 the next is a logger
+# writing 0 for a lost probe (review round fifteen: 20 July days of a soil at 0 moved
+# the example site's GPP by -262 g C m-2 with respiration_driver = "tsoil").
+_CURTAIN_JUMP = 5.0
 # Repeated records (our choice): a day or more of consecutive records whose NEE and
 # every driver read equal, value for value, the records a fixed lag of a day or more
 # earlier. Measured records never repeat so (the last digits of a flux and a
@@ -249,6 +257,14 @@ def _runs(values: np.ndarray, min_length: float = 2):
     return [present[starts[i]:ends[i]] for i in long]
 
 
+def _jumps(values: np.ndarray, positions: np.ndarray, limit: float) -> bool:
+    """Whether the record just before or just after a run differs from it by > `limit`."""
+    value = values[positions[0]]
+    beside = [positions[0] - 1, positions[-1] + 1]
+    return any(0 <= i < values.size and np.isfinite(values[i]) and abs(values[i] - value) > limit
+               for i in beside)
+
+
 def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
     """Sensors that repeat one value for days: their records enter as measured."""
     index = pd.DatetimeIndex(frame.index)
@@ -263,7 +279,8 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
         for positions in _runs(values, min_length=days_needed * per_day):
             value = values[positions[0]]
             if value in natural or (name == "tsoil" and abs(value) <= _ZERO_CURTAIN):
-                continue
+                if name != "tsoil" or not _jumps(values, positions, _CURTAIN_JUMP):
+                    continue
             sunlit = int(sun_up[positions].sum())
             if name == "rg" and sunlit < _STUCK_SUNLIT_RECORDS:
                 continue
