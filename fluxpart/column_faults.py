@@ -8,7 +8,9 @@ columns must obey:
   less than the air's;
 * NEE shifted by whole records against the drivers (:func:`nee_lag`): photosynthesis
   answers a change of light within minutes, so a cloud's change of Rg and the change
-  of NEE it causes fall into the same record.
+  of NEE it causes fall into the same record;
+* air temperature shifted by whole records against the humidity columns
+  (:func:`tair_lag`): VPD is a function of temperature and humidity at one moment.
 
 Both return a one-line message (the caller's warning) or None. Both only warn: the
 physics leaves rare true records on the far side of each criterion (see each
@@ -21,7 +23,9 @@ import math
 
 import numpy as np
 
-__all__ = ["SOIL_RANGE_RATIO", "nee_lag", "swapped_temperatures"]
+from .variables import vpd_from_rh
+
+__all__ = ["SOIL_RANGE_RATIO", "nee_lag", "swapped_temperatures", "tair_lag"]
 
 #: Ratio of the soil column's to the air column's median daily temperature range above
 #: which the columns are named as swapped [1]. Heat conduction damps the diurnal
@@ -50,6 +54,12 @@ _LAG_STANDARD_ERRORS = 3.0
 #: noise hides the light response and no shift can be told. Our choice.
 _MIN_CORRELATION = 0.1
 _MIN_PAIRS = 500
+#: Correlation of the changes of the VPD column and of e_s(T) (1 - RH / 100) at the best
+#: shift of tair that marks the VPD as written from this very temperature record: then
+#: the two agree to the written digits (our choice; two sensors, even side by side,
+#: differ by their noise and response times, and their changes agree less closely, so a
+#: tair from another sensor or height than the humidity probe's is never named).
+_SAME_SENSOR = 0.98
 
 
 def _daily_ranges(values: np.ndarray, per_day: int, usable: np.ndarray) -> np.ndarray:
@@ -135,6 +145,103 @@ def _correlation(a: np.ndarray, b: np.ndarray) -> tuple[float, int]:
     return (float(x @ y) / scale if scale > 0 else math.nan), count
 
 
+def _decide(scores: dict):
+    """The shift whose correlation clearly beats the same record's, or None.
+
+    `scores` maps a shift k [records] to (correlation, pairs), the correlation signed so
+    that the physical relation is positive. Returns (k, its correlation, that of k = 0,
+    Fisher z difference in standard errors) where k is not 0, its correlation reaches
+    :data:`_MIN_CORRELATION` and its Fisher z exceeds that of k = 0 by
+    :data:`_LAG_STANDARD_ERRORS` standard errors (sqrt(2 / (n - 3))); otherwise None.
+    """
+    if not all(math.isfinite(v) for v, _ in scores.values()):
+        return None
+    best = max(scores, key=lambda k: scores[k][0])
+    strength, count = scores[best]
+    if best == 0 or strength < _MIN_CORRELATION:
+        return None
+    z_best = math.atanh(min(strength, 0.999999))
+    z_zero = math.atanh(max(min(scores[0][0], 0.999999), -0.999999))
+    error = math.sqrt(2.0 / (min(count, scores[0][1]) - 3))
+    if z_best - z_zero <= _LAG_STANDARD_ERRORS * error:
+        return None
+    return best, strength, scores[0][0], (z_best - z_zero) / error
+
+
+def tair_lag(tair, rh, vpd, interval_minutes: float, columns=None) -> str | None:
+    """A message where the air temperature fits the humidity columns shifted, or None.
+
+    Parameters
+    ----------
+    tair : array_like
+        Air temperature of each record [°C].
+    rh : array_like
+        Relative humidity of each record [%].
+    vpd : array_like
+        Vapour pressure deficit of each record [hPa], as the file gives it.
+    interval_minutes : float
+        Record interval [min].
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where the VPD implied by RH and the air temperature of
+        the same record follows the VPD column best (always so for a VPD derived from
+        RH and tair), or the changes cannot tell.
+
+    Notes
+    -----
+    VPD = e_s(T) (1 - RH / 100) holds at one moment (Campbell & Norman 1998, ch. 3
+    (m)); a humidity probe's temperature and a separate air-temperature sensor both
+    answer within minutes, far less than a record. The changes from record to record
+    of the VPD column are correlated with those of e_s(T) (1 - RH / 100) computed with
+    the air temperature ``k`` records later; where a ``k`` other than 0 correlates
+    clearly better (3 standard errors of Fisher's z, as :func:`nee_lag`) and to 0.98 or
+    more (the VPD column written from this very temperature, :data:`_SAME_SENSOR`), the
+    tair column is named as shifted against RH and VPD. An air temperature from another
+    sensor than the humidity probe's fits less closely at every shift and is left alone,
+    unless its daily cycle trails the probe's by whole records (a sensor below a canopy,
+    say), which no record can tell from a shifted clock.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 3 (m).
+    """
+    tair, rh, vpd = (np.asarray(v, dtype=float) for v in (tair, rh, vpd))
+    if tair.size < 3 or not tair.size == rh.size == vpd.size or interval_minutes <= 0:
+        return None
+    most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
+    scores = {}
+    d_vpd = np.diff(vpd)
+    for k in range(-most, most + 1):
+        shifted = np.full(tair.size, np.nan)
+        if k >= 0:
+            shifted[:tair.size - k] = tair[k:]
+        else:
+            shifted[-k:] = tair[:k]
+        with np.errstate(invalid="ignore", over="ignore"):
+            implied = vpd_from_rh(rh, shifted)
+        r, count = _correlation(np.diff(implied), d_vpd)
+        scores[k] = (r, count)
+    found = _decide(scores)
+    if found is None or found[1] < _SAME_SENSOR:
+        return None
+    best, strength, same, apart = found
+    names = columns or {}
+    later = "later" if best > 0 else "earlier"
+    return (f"air temperature (column {names.get('tair', 'tair')!r}) matches the VPD "
+            f"(column {names.get('vpd', 'vpd')!r}) and RH (column {names.get('rh', 'rh')!r}) "
+            f"best {abs(best)} record(s) ({abs(best) * interval_minutes:g} min) {later} "
+            f"(correlation of the changes of VPD and e_s(T) (1 - RH / 100) {strength:.2f} "
+            f"there, {same:.2f} in the same record, {apart:.0f} standard errors apart): VPD holds at one "
+            f"moment, so the tair column looks shifted by {abs(best)} record(s) against "
+            "the humidity columns (a second logger's clock); align the columns in a copy of "
+            "the file")
+
+
 def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | None:
     """A message where NEE follows Rg by whole records, or None.
 
@@ -197,25 +304,17 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
             a, b = d_nee[:k], d_rg[-k:]
         r, count = _correlation(a, b)
         scores[k] = (-r, count)
-    if not all(math.isfinite(v) for v, _ in scores.values()):
+    found = _decide(scores)
+    if found is None:
         return None
-    best = max(scores, key=lambda k: scores[k][0])
-    strength, count = scores[best]
-    if best == 0 or strength < _MIN_CORRELATION:
-        return None
-    z_best = math.atanh(min(strength, 0.999999))
-    z_zero = math.atanh(max(min(scores[0][0], 0.999999), -0.999999))
-    error = math.sqrt(2.0 / (min(count, scores[0][1]) - 3))
-    if z_best - z_zero <= _LAG_STANDARD_ERRORS * error:
-        return None
+    best, strength, same, apart = found
     names = columns or {}
     minutes = abs(best) * interval_minutes
     later = "later" if best > 0 else "earlier"
     return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
             f"{names.get('rg', 'rg')!r}) {abs(best)} record(s) ({minutes:g} min) {later} "
             f"than the same record (correlation of the sunlit changes {strength:.2f} there, "
-            f"{scores[0][0]:.2f} in the same record, {(z_best - z_zero) / error:.0f} "
-            "standard errors apart): photosynthesis follows light within minutes, so the "
+            f"{same:.2f} in the same record, {apart:.0f} standard errors apart): photosynthesis follows light within minutes, so the "
             f"NEE column looks shifted by {abs(best)} record(s) against the drivers (a "
             "flux file stamped at interval ends joined with a weather file stamped at "
             "starts reads like this); align the columns in a copy of the file")

@@ -40,6 +40,8 @@ soil temperature swinging more than the   input (tair, tsoil)                 no
 air (columns swapped)
 NEE changing with Rg whole records        input (nee)                         no
 earlier or later (column shifted)
+tair fitting VPD and RH whole records     input (tair)                        no
+earlier or later (column shifted)
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no
@@ -59,7 +61,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from .column_faults import nee_lag, swapped_temperatures
+from .column_faults import nee_lag, swapped_temperatures, tair_lag
 from .gapfill import QUALITY_A_WINDOW_DAYS
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
@@ -303,7 +305,8 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
 
 def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                    sources=None) -> list:
-    """Air and soil temperature swapped, NEE shifted against Rg (:mod:`.column_faults`)."""
+    """Air and soil temperature swapped, NEE shifted against Rg, air temperature against
+    RH and VPD (:mod:`.column_faults`)."""
     findings = []
     names = {**{name: name for name in screened.columns}, **(sources or {})}
     if {"tair", "tsoil"} <= set(screened.columns):
@@ -321,6 +324,12 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                        names)
         if text:
             findings.append(Finding("input (nee)", text, False))
+    if {"tair", "rh", "vpd"} <= set(screened.columns):
+        text = tair_lag(screened["tair"].to_numpy(dtype=float),
+                        screened["rh"].to_numpy(dtype=float),
+                        screened["vpd"].to_numpy(dtype=float), interval_minutes, names)
+        if text:
+            findings.append(Finding("input (tair)", text, False))
     return findings
 
 

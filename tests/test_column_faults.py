@@ -5,14 +5,17 @@ conduction under a sinusoidal surface temperature (amplitude exp(-z / d), lag z 
 radians, d = sqrt(2 kappa / omega); Campbell & Norman 1998, An Introduction to
 Environmental Biophysics, ch. 8 (m)); NEE follows a rectangular light response without
 delay (photosynthesis answers light within minutes; Lambers, Chapin & Pons 2008, Plant
-Physiological Ecology, ch. 2 (m)).
+Physiological Ecology, ch. 2 (m)); VPD = e_s(T) (1 - RH / 100) at one moment (Campbell &
+Norman 1998, ch. 3 (m)), e_s from fluxpart.variables (Magnus form, checked against its
+handbook values in test_variables).
 """
 
 import numpy as np
 import pandas as pd
 
-from fluxpart.column_faults import SOIL_RANGE_RATIO, nee_lag, swapped_temperatures
+from fluxpart.column_faults import SOIL_RANGE_RATIO, nee_lag, swapped_temperatures, tair_lag
 from fluxpart.preflight import _column_faults
+from fluxpart.variables import vpd_from_rh
 
 STEP = 30
 PER_DAY = 1440 // STEP
@@ -128,3 +131,39 @@ def test_preflight_names_both_faults():
     assert stages == ["input (tair, tsoil)", "input (nee)"]
     frame = pd.DataFrame({"tair": air, "tsoil": soil, "nee": nee, "rg": rg}, index=index)
     assert _column_faults(frame, potential, STEP) == []
+
+
+def humidity_record(seed=0):
+    """Invented air temperature, RH, and the VPD a logger writes from both."""
+    air, _ = temperatures(0.05, seed=seed)
+    rng = np.random.default_rng(seed + 1)
+    phase = 2 * np.pi * (np.arange(air.size) % PER_DAY) / PER_DAY
+    rh = np.clip(70.0 - 20.0 * np.sin(phase - np.pi / 2) + rng.normal(0, 3.0, air.size),
+                 15.0, 100.0)
+    return air, rh, vpd_from_rh(rh, air)
+
+
+def test_vpd_written_from_the_same_temperature_is_quiet():
+    air, rh, vpd = humidity_record()
+    assert tair_lag(air, rh, vpd, STEP) is None
+
+
+def test_air_temperature_an_hour_late_against_the_humidity_is_named():
+    air, rh, vpd = humidity_record()
+    late = np.concatenate([[np.nan, np.nan], air[:-2]])
+    text = tair_lag(late, rh, vpd, STEP, columns={"tair": "ta", "vpd": "vpd_k", "rh": "hum"})
+    assert text is not None and "2 record(s) (60 min) later" in text and "'ta'" in text
+
+
+def test_air_temperature_of_another_sensor_is_quiet():
+    # a second, slower sensor (first-order response, 20 min time constant) with its own
+    # 0.3 K noise: the VPD was written from the humidity probe's temperature, not from
+    # this one, and the same record still fits it best
+    air, rh, vpd = humidity_record()
+    rng = np.random.default_rng(5)
+    weight = np.exp(-STEP / 20.0)
+    other = air.copy()
+    for i in range(1, other.size):
+        other[i] = weight * other[i - 1] + (1 - weight) * air[i]
+    other = other + rng.normal(0, 0.3, other.size)
+    assert tair_lag(other, rh, vpd, STEP) is None
