@@ -10,7 +10,9 @@ columns must obey:
   answers a change of light within minutes, so a cloud's change of Rg and the change
   of NEE it causes fall into the same record;
 * air temperature shifted by whole records against the humidity columns
-  (:func:`tair_lag`): VPD is a function of temperature and humidity at one moment.
+  (:func:`tair_lag`): VPD is a function of temperature and humidity at one moment;
+* NEE whose sign changed within the record (:func:`months_rising_with_light`): in
+  months whose NEE rises with each brightening while other months' falls.
 
 Both return a one-line message (the caller's warning) or None. Both only warn: the
 physics leaves rare true records on the far side of each criterion (see each
@@ -22,10 +24,12 @@ from __future__ import annotations
 import math
 
 import numpy as np
+import pandas as pd
 
 from .variables import vpd_from_rh
 
-__all__ = ["SOIL_RANGE_RATIO", "nee_lag", "swapped_temperatures", "tair_lag"]
+__all__ = ["SOIL_RANGE_RATIO", "months_rising_with_light", "nee_lag", "swapped_temperatures",
+           "tair_lag"]
 
 #: Ratio of the soil column's to the air column's median daily temperature range above
 #: which the columns are named as swapped [1]. Heat conduction damps the diurnal
@@ -60,6 +64,14 @@ _MIN_PAIRS = 500
 #: differ by their noise and response times, and their changes agree less closely, so a
 #: tair from another sensor or height than the humidity probe's is never named).
 _SAME_SENSOR = 0.98
+#: Correlation of a month's sunlit changes of NEE and Rg beyond which the month's light
+#: response is clear, either way [1] (with 3 standard errors of Fisher's z): a month of
+#: active vegetation has a negative one (more light, more uptake, within the record),
+#: a dormant month one near 0 (its respiration follows temperature, hours behind the
+#: light, and the random error of the changes dominates). Our choice.
+_CLEAR_RESPONSE = 0.2
+#: Sunlit pairs a month needs to be judged (about 10 days of half-hours with the sun up).
+_MONTH_PAIRS = 100
 
 
 def _daily_ranges(values: np.ndarray, per_day: int, usable: np.ndarray) -> np.ndarray:
@@ -141,8 +153,9 @@ def _correlation(a: np.ndarray, b: np.ndarray) -> tuple[float, int]:
     if count < _MIN_PAIRS:
         return math.nan, count
     x, y = a[ok] - a[ok].mean(), b[ok] - b[ok].mean()
-    scale = math.sqrt(float(x @ x) * float(y @ y))
-    return (float(x @ y) / scale if scale > 0 else math.nan), count
+    # sums of products, not BLAS dot products: the same bits on every CPU and thread count
+    scale = math.sqrt(float(np.sum(x * x)) * float(np.sum(y * y)))
+    return (float(np.sum(x * y)) / scale if scale > 0 else math.nan), count
 
 
 def _decide(scores: dict):
@@ -318,3 +331,76 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
             f"NEE column looks shifted by {abs(best)} record(s) against the drivers (a "
             "flux file stamped at interval ends joined with a weather file stamped at "
             "starts reads like this); align the columns in a copy of the file")
+
+
+def months_rising_with_light(nee, rg, potential, stamps, columns=None) -> str | None:
+    """A message naming months whose NEE rises with light while other months' falls.
+
+    Parameters
+    ----------
+    nee : array_like
+        NEE of each record [µmol m-2 s-1] (NaN = missing or rejected).
+    rg : array_like
+        Global radiation of each record [W m-2].
+    potential : array_like
+        Potential radiation of each record [W m-2]; only changes between two records
+        with the sun up count.
+    stamps : pandas.DatetimeIndex
+        Interval starts of the records (the months).
+    columns : dict, optional
+        Canonical name -> file column, to name the column in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text, or None where no month's NEE clearly rises with light or no
+        month's clearly falls with it.
+
+    Notes
+    -----
+    Photosynthesis follows light within minutes (see :func:`nee_lag`), so in a month of
+    active vegetation the changes of NEE from record to record correlate negatively with
+    those of Rg (a cloud passing: less light, less uptake, NEE up). A month whose
+    correlation is clearly positive (above 0.2 and 3 standard errors of Fisher's z,
+    sqrt(1 / (n - 3)), above 0) in a record holding clearly negative months as well has
+    NEE of the opposite sign there: a sign convention that changed within the record
+    (a new logger program, a second processing's file). The whole record of the
+    opposite sign is the reader's refusal (:mod:`fluxpart.unit_checks`).
+
+    References
+    ----------
+    Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
+    2nd ed. Springer, ch. 2 (m).
+    """
+    nee = np.asarray(nee, dtype=float)
+    rg = np.asarray(rg, dtype=float)
+    potential = np.asarray(potential, dtype=float)
+    if nee.size < 3 or not nee.size == rg.size == potential.size == len(stamps):
+        return None
+    d_nee, d_rg = np.diff(nee), np.diff(rg)
+    usable = ((potential[1:] > 0) & (potential[:-1] > 0) & np.isfinite(d_nee)
+              & np.isfinite(d_rg))
+    index = pd.DatetimeIndex(stamps[1:])
+    months = index.year.to_numpy() * 12 + index.month.to_numpy() - 1
+    rising, falling = [], []
+    for code in np.unique(months[usable]):
+        chosen = usable & (months == code)
+        month = f"{code // 12:04d}-{code % 12 + 1:02d}"
+        count = int(chosen.sum())
+        if count < _MONTH_PAIRS:
+            continue
+        r, _ = _correlation(d_nee[chosen], d_rg[chosen])
+        if not math.isfinite(r) or abs(r) < _CLEAR_RESPONSE:
+            continue
+        if abs(math.atanh(r)) * math.sqrt(count - 3) <= _LAG_STANDARD_ERRORS:
+            continue
+        (rising if r > 0 else falling).append((month, r))
+    if not rising or not falling:
+        return None
+    shown = ", ".join(f"{month} ({r:+.2f})" for month, r in rising)
+    return (f"NEE (column {(columns or {}).get('nee', 'nee')!r}) rises with light in "
+            f"{len(rising)} month(s): {shown} (correlation of the sunlit changes of NEE and "
+            f"Rg), where {len(falling)} other month(s) show the uptake that light brings "
+            "within minutes (a negative correlation): NEE there looks of the opposite sign "
+            "(a sign convention changed within the record); check the column and flip "
+            "those months in a copy of the file")

@@ -42,6 +42,8 @@ NEE changing with Rg whole records        input (nee)                         no
 earlier or later (column shifted)
 tair fitting VPD and RH whole records     input (tair)                        no
 earlier or later (column shifted)
+months whose NEE rises with light beside  input (nee sign)                    no
+months whose NEE falls with it
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no
@@ -61,7 +63,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from .column_faults import nee_lag, swapped_temperatures, tair_lag
+from .column_faults import months_rising_with_light, nee_lag, swapped_temperatures, tair_lag
 from .gapfill import QUALITY_A_WINDOW_DAYS
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
@@ -305,8 +307,8 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
 
 def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                    sources=None) -> list:
-    """Air and soil temperature swapped, NEE shifted against Rg, air temperature against
-    RH and VPD (:mod:`.column_faults`)."""
+    """Air and soil temperature swapped, NEE shifted against Rg or of the opposite sign in
+    some months, air temperature shifted against RH and VPD (:mod:`.column_faults`)."""
     findings = []
     names = {**{name: name for name in screened.columns}, **(sources or {})}
     if {"tair", "tsoil"} <= set(screened.columns):
@@ -324,6 +326,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                        names)
         if text:
             findings.append(Finding("input (nee)", text, False))
+        text = months_rising_with_light(screened["nee"].to_numpy(dtype=float),
+                                        screened["rg"].to_numpy(dtype=float), potential,
+                                        screened.index, names)
+        if text:
+            findings.append(Finding("input (nee sign)", text, False))
     if {"tair", "rh", "vpd"} <= set(screened.columns):
         text = tair_lag(screened["tair"].to_numpy(dtype=float),
                         screened["rh"].to_numpy(dtype=float),

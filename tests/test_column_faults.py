@@ -13,7 +13,13 @@ handbook values in test_variables).
 import numpy as np
 import pandas as pd
 
-from fluxpart.column_faults import SOIL_RANGE_RATIO, nee_lag, swapped_temperatures, tair_lag
+from fluxpart.column_faults import (
+    SOIL_RANGE_RATIO,
+    months_rising_with_light,
+    nee_lag,
+    swapped_temperatures,
+    tair_lag,
+)
 from fluxpart.preflight import _column_faults
 from fluxpart.variables import vpd_from_rh
 
@@ -167,3 +173,31 @@ def test_air_temperature_of_another_sensor_is_quiet():
         other[i] = weight * other[i - 1] + (1 - weight) * air[i]
     other = other + rng.normal(0, 0.3, other.size)
     assert tair_lag(other, rh, vpd, STEP) is None
+
+
+def stamped_light_record(**kwargs):
+    nee, rg, potential = light_record(**kwargs)
+    return nee, rg, potential, pd.date_range("2021-03-01", periods=nee.size, freq=f"{STEP}min")
+
+
+def test_months_of_the_opposite_sign_are_named():
+    nee, rg, potential, stamps = stamped_light_record()
+    flipped = np.where(stamps >= "2021-05-01", -nee, nee)
+    text = months_rising_with_light(flipped, rg, potential, stamps, columns={"nee": "co2"})
+    assert text is not None and "'co2'" in text
+    assert "2021-05" in text and "2021-06" in text and "2021-03" not in text
+
+
+def test_one_sign_throughout_is_quiet():
+    nee, rg, potential, stamps = stamped_light_record()
+    assert months_rising_with_light(nee, rg, potential, stamps) is None
+    # the whole record of the opposite sign is the reader's refusal, not named here
+    assert months_rising_with_light(-nee, rg, potential, stamps) is None
+
+
+def test_dormant_months_beside_active_ones_are_quiet():
+    # months without photosynthesis: respiration and noise only, no light response
+    nee, rg, potential, stamps = stamped_light_record()
+    rng = np.random.default_rng(3)
+    dormant = np.where(stamps < "2021-04-15", 1.0 + rng.normal(0, 1.0, nee.size), nee)
+    assert months_rising_with_light(dormant, rg, potential, stamps) is None
