@@ -147,10 +147,11 @@ def swapped_temperatures(tair, tsoil, interval_minutes: float, first_offset: int
             "columns swapped: if so, exchange tair and tsoil in [input.columns]")
 
 
-def _correlation(a: np.ndarray, b: np.ndarray) -> tuple[float, int]:
+def _correlation(a: np.ndarray, b: np.ndarray, minimum: int = _MIN_PAIRS) -> tuple[float, int]:
+    """Pearson correlation of the pairs both present and their count (NaN below `minimum`)."""
     ok = np.isfinite(a) & np.isfinite(b)
     count = int(ok.sum())
-    if count < _MIN_PAIRS:
+    if count < minimum:
         return math.nan, count
     x, y = a[ok] - a[ok].mean(), b[ok] - b[ok].mean()
     # sums of products, not BLAS dot products: the same bits on every CPU and thread count
@@ -389,7 +390,7 @@ def months_rising_with_light(nee, rg, potential, stamps, columns=None) -> str | 
         count = int(chosen.sum())
         if count < _MONTH_PAIRS:
             continue
-        r, _ = _correlation(d_nee[chosen], d_rg[chosen])
+        r, _ = _correlation(d_nee[chosen], d_rg[chosen], _MONTH_PAIRS)
         if not math.isfinite(r) or abs(r) < _CLEAR_RESPONSE:
             continue
         if abs(math.atanh(r)) * math.sqrt(count - 3) <= _LAG_STANDARD_ERRORS:

@@ -201,3 +201,13 @@ def test_dormant_months_beside_active_ones_are_quiet():
     rng = np.random.default_rng(3)
     dormant = np.where(stamps < "2021-04-15", 1.0 + rng.normal(0, 1.0, nee.size), nee)
     assert months_rising_with_light(dormant, rg, potential, stamps) is None
+
+
+def test_months_of_an_hourly_record_are_judged():
+    # an hourly month holds about 360 sunlit pairs: fewer than the shift checks' minimum
+    # of 500 over the record, enough for a month's sign (regression: hourly months were
+    # never judged)
+    nee, rg, potential, stamps = stamped_light_record()
+    flipped = np.where(stamps >= "2021-05-01", -nee, nee)
+    text = months_rising_with_light(flipped[::2], rg[::2], potential[::2], stamps[::2])
+    assert text is not None and "2021-05" in text
