@@ -366,7 +366,10 @@ def months_rising_with_light(nee, rg, potential, stamps, columns=None) -> str | 
     sqrt(1 / (n - 3)), above 0) in a record holding clearly negative months as well has
     NEE of the opposite sign there: a sign convention that changed within the record
     (a new logger program, a second processing's file). The whole record of the
-    opposite sign is the reader's refusal (:mod:`fluxpart.unit_checks`).
+    opposite sign is the reader's refusal (:mod:`fluxpart.unit_checks`). A month without
+    photosynthesis whose respiration follows the sunlit surface's temperature within a
+    record (a rain pulse on bare, dark soil (m)) could rise with light too, which is one
+    reason this only warns.
 
     References
     ----------
