@@ -14,9 +14,13 @@ columns must obey:
 * NEE whose sign changed within the record (:func:`months_rising_with_light`): in
   months whose NEE rises with each brightening while other months' falls.
 
-Both return a one-line message (the caller's warning) or None. Both only warn: the
+Each returns a one-line message (the caller's warning) or None. They only warn: the
 physics leaves rare true records on the far side of each criterion (see each
-function's Notes), and a refused valid record is worse than a warned wrong one.
+function's Notes), and a refused valid record is worse than a warned wrong one. For the
+temperature swap the choice is also one of proportion: a bare, dry soil probe at 2 cm
+can swing twice the air (m), and on the example site the swap moved annual NEE by
++2 g C m-2 and Reco by +4 g C m-2, within their stated uncertainty (6.9 and 22 g C m-2,
+1 sigma), so a refusal would block valid records to prevent a small error.
 """
 
 from __future__ import annotations
