@@ -37,6 +37,14 @@ a variable repeating one value for days   input (stuck sensor)                no
 (Rg: with the sun up)
 a day or more of records repeating        input (repeated records)            no
 earlier ones in every variable
+soil temperature swinging more than the   input (tair, tsoil)                 no
+air (columns swapped)
+NEE changing with Rg whole records        input (nee)                         no
+earlier or later (column shifted)
+tair fitting VPD and RH whole records     input (tair)                        no
+earlier or later (column shifted)
+months whose NEE rises with light beside  input (nee sign)                    no
+months whose NEE falls with it
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no
@@ -59,6 +67,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from .column_faults import months_rising_with_light, nee_lag, swapped_temperatures, tair_lag
 from .gapfill import QUALITY_A_WINDOW_DAYS
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
@@ -123,6 +132,14 @@ _STUCK_SUN_UP = 200.0
 # resolution then repeats -0.1 or -0.2 as naturally as 0. A soil value this close to 0
 # is not called stuck.
 _ZERO_CURTAIN = 0.5
+# ... unless the run begins or ends with a jump of more than this [K] from the record
+# beside it: conduction brings a soil to its freezing point gradually. At depth z the
+# daily cycle of amplitude A0 exp(-z / d) (d about 0.1 m; Campbell & Norman 1998, ch. 8
+# (m)) changes at most A0 exp(-z / d) 2 pi / 24 h, about 4 K an hour at 2 cm under a bare
+# surface swinging 20 K (m), so a soil at 15 °C one record and 0 the next is a logger
+# writing 0 for a lost probe (review round fifteen: 20 July days of a soil at 0 moved
+# the example site's GPP by -262 g C m-2 with respiration_driver = "tsoil").
+_CURTAIN_JUMP = 5.0
 # Repeated records (our choice): a day or more of consecutive records whose NEE and
 # every driver read equal, value for value, the records a fixed lag of a day or more
 # earlier. Measured records never repeat so (the last digits of a flux and a
@@ -248,6 +265,14 @@ def _runs(values: np.ndarray, min_length: float = 2):
     return [present[starts[i]:ends[i]] for i in long]
 
 
+def _jumps(values: np.ndarray, positions: np.ndarray, limit: float) -> bool:
+    """Whether the record just before or just after a run differs from it by > `limit`."""
+    value = values[positions[0]]
+    beside = [positions[0] - 1, positions[-1] + 1]
+    return any(0 <= i < values.size and np.isfinite(values[i]) and abs(values[i] - value) > limit
+               for i in beside)
+
+
 def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
     """Sensors that repeat one value for days: their records enter as measured."""
     index = pd.DatetimeIndex(frame.index)
@@ -262,7 +287,8 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
         for positions in _runs(values, min_length=days_needed * per_day):
             value = values[positions[0]]
             if value in natural or (name == "tsoil" and abs(value) <= _ZERO_CURTAIN):
-                continue
+                if name != "tsoil" or not _jumps(values, positions, _CURTAIN_JUMP):
+                    continue
             sunlit = int(sun_up[positions].sum())
             if name == "rg" and sunlit < _STUCK_SUNLIT_RECORDS:
                 continue
@@ -280,6 +306,41 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
             f"records{sun}){more}: a stuck, dead or disconnected sensor (or a placeholder "
             "value) reads like this, and the values would enter as measured; mark them "
             "missing in a copy of the file"), False))
+    return findings
+
+
+def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
+                   sources=None) -> list:
+    """Air and soil temperature swapped, NEE shifted against Rg or of the opposite sign in
+    some months, air temperature shifted against RH and VPD (:mod:`.column_faults`)."""
+    findings = []
+    names = {**{name: name for name in screened.columns}, **(sources or {})}
+    if {"tair", "tsoil"} <= set(screened.columns):
+        index = pd.DatetimeIndex(screened.index)
+        offset = int(round((index[0] - index[0].normalize()) / pd.Timedelta(
+            minutes=interval_minutes))) if len(index) else 0
+        text = swapped_temperatures(screened["tair"].to_numpy(dtype=float),
+                                    screened["tsoil"].to_numpy(dtype=float),
+                                    interval_minutes, offset, names)
+        if text:
+            findings.append(Finding("input (tair, tsoil)", text, False))
+    if {"nee", "rg"} <= set(screened.columns):
+        text = nee_lag(screened["nee"].to_numpy(dtype=float),
+                       screened["rg"].to_numpy(dtype=float), potential, interval_minutes,
+                       names)
+        if text:
+            findings.append(Finding("input (nee)", text, False))
+        text = months_rising_with_light(screened["nee"].to_numpy(dtype=float),
+                                        screened["rg"].to_numpy(dtype=float), potential,
+                                        screened.index, names)
+        if text:
+            findings.append(Finding("input (nee sign)", text, False))
+    if {"tair", "rh", "vpd"} <= set(screened.columns):
+        text = tair_lag(screened["tair"].to_numpy(dtype=float),
+                        screened["rh"].to_numpy(dtype=float),
+                        screened["vpd"].to_numpy(dtype=float), interval_minutes, names)
+        if text:
+            findings.append(Finding("input (tair)", text, False))
     return findings
 
 
@@ -635,6 +696,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         findings += _stuck(frame, potential, interval_minutes)
         repeated = _repeated_records(frame, interval_minutes)
         findings += repeated or _repeated_nee(frame, interval_minutes)
+        findings += _column_faults(screened, potential, interval_minutes, sources)
     days = ((index - index[0].normalize()) / pd.Timedelta(days=1)).to_numpy()
     nee = screened["nee"].to_numpy(dtype=float)
     temperature = (screened[temperature_name].to_numpy(dtype=float)

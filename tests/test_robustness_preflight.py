@@ -65,6 +65,39 @@ def test_soil_in_the_zero_curtain_is_not_stuck(year, value, found):
     assert bool(findings) is found
 
 
+@pytest.mark.parametrize("value", [0.0, -0.1])
+def test_lost_soil_probe_written_as_zero_in_summer_is_stuck(year, value):
+    """A logger writing 0 for a lost soil probe through 20 July days was excepted as the
+    zero curtain (review round fifteen; with respiration_driver = "tsoil" it moved the
+    example site's GPP by -262 g C m-2 without a word). Conduction brings a soil to its
+    freezing point gradually: at depth z its daily cycle A0 exp(-z / d), d about 0.1 m
+    (Campbell & Norman 1998, ch. 8 (m)), changes by a few K an hour at most, so a soil at
+    summer warmth one record and at 0 the next is no zero curtain."""
+    frame, _, potential = year
+    lost = frame.copy()
+    summer = (lost.index >= "2021-07-05") & (lost.index < "2021-07-25")
+    before = lost["tsoil"][lost.index < "2021-07-05"].iloc[-1]
+    assert before > 5.0                       # the soil's warmth beside the run
+    lost.loc[summer, "tsoil"] = value
+    findings = [f for f in _stuck(lost, potential, 30) if f.stage == "input (tsoil)"]
+    assert len(findings) == 1 and "2021-07-05" in findings[0].message
+
+
+def test_zero_curtain_entered_gradually_stays_excepted(year):
+    """A soil cooling to 0 over days, then held there (a true zero curtain), is not named
+    even in a warm month: the criterion is the jump beside the run, not the season."""
+    frame, _, potential = year
+    held = frame.copy()
+    days = (held.index >= "2021-03-01") & (held.index < "2021-03-21")
+    approach = (held.index >= "2021-02-25") & (held.index < "2021-03-01")
+    leave = (held.index >= "2021-03-21") & (held.index < "2021-03-25")
+    after = held["tsoil"][held.index >= "2021-03-25"].iloc[0]
+    held.loc[approach, "tsoil"] = np.linspace(2.0, 0.05, int(approach.sum()))
+    held.loc[days, "tsoil"] = 0.0
+    held.loc[leave, "tsoil"] = np.linspace(0.05, after, int(leave.sum()))
+    assert [f for f in _stuck(held, potential, 30) if f.stage == "input (tsoil)"] == []
+
+
 def test_polar_night_zero_rg_is_not_stuck(year):
     """Rg = 0 for weeks where the sun never rises (potential radiation 0) is correct."""
     frame, _, potential = year

@@ -1,0 +1,414 @@
+"""Columns that pass every range but hold the wrong quantity or the wrong record.
+
+Two mapping faults that no plausible range can see, found by physics the true
+columns must obey:
+
+* air and soil temperature swapped (:func:`swapped_temperatures`): heat conduction
+  damps the diurnal cycle of the soil with depth, so the soil column's days swing
+  less than the air's;
+* NEE shifted by whole records against the drivers (:func:`nee_lag`): photosynthesis
+  answers a change of light within minutes, so a cloud's change of Rg and the change
+  of NEE it causes fall into the same record;
+* air temperature shifted by whole records against the humidity columns
+  (:func:`tair_lag`): VPD is a function of temperature and humidity at one moment;
+* NEE whose sign changed within the record (:func:`months_rising_with_light`): in
+  months whose NEE rises with each brightening while other months' falls.
+
+Each returns a one-line message (the caller's warning) or None. They only warn: the
+physics leaves rare true records on the far side of each criterion (see each
+function's Notes), and a refused valid record is worse than a warned wrong one. For the
+temperature swap the choice is also one of proportion: a bare, dry soil probe at 2 cm
+can swing twice the air (m), and on the example site the swap moved annual NEE by
++2 g C m-2 and Reco by +4 g C m-2, within their stated uncertainty (6.9 and 22 g C m-2,
+1 sigma), so a refusal would block valid records to prevent a small error.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pandas as pd
+
+from .variables import vpd_from_rh
+
+__all__ = ["SOIL_RANGE_RATIO", "months_rising_with_light", "nee_lag", "swapped_temperatures",
+           "tair_lag"]
+
+#: Ratio of the soil column's to the air column's median daily temperature range above
+#: which the columns are named as swapped [1]. Heat conduction damps the diurnal
+#: amplitude with depth z as exp(-z / d), damping depth d = sqrt(2 kappa / omega) about
+#: 0.1 m for typical soils (thermal diffusivity kappa 3-8e-7 m2 s-1; Hillel 1998,
+#: Environmental Soil Physics, ch. 12 (m); Campbell & Norman 1998, An Introduction to
+#: Environmental Biophysics, ch. 8 (m)). A probe at the shallowest usual depth, 2 cm
+#: (common practice), keeps at most exp(-0.2) = 0.82 of the surface's swing, so its
+#: range exceeds the air's 1.5 times only where the surface swings 1.8 times the air:
+#: bare, dry, sunlit soil (m), not the vegetated surfaces towers stand over. Our choice.
+SOIL_RANGE_RATIO = 1.5
+#: The soil's median daily range must also exceed the air's by this many K: probes read
+#: to about 0.1 K (m), so a ratio of a few resolution steps proves nothing. Our choice.
+_SOIL_RANGE_EXCESS = 1.0
+#: Days with two thirds of both temperatures present needed to judge: two weeks, so a
+#: few days of weather (a calm, clear spell) do not decide. Our choice.
+_MIN_DAYS = 14
+#: The widest shift looked for [min]: two hours of records either way.
+_MAX_SHIFT_MINUTES = 120
+#: Standard errors by which the Fisher z of the best shifted correlation must exceed
+#: that of the unshifted one (3: the conventional threshold of a clear difference;
+#: the standard error sqrt(2 / (n - 3)) of two independent correlations is an upper
+#: bound for two correlations of the same records, which share most of their noise).
+_LAG_STANDARD_ERRORS = 3.0
+#: Minimum correlation of the Rg and NEE changes at the best shift: below it the NEE
+#: noise hides the light response and no shift can be told. Our choice.
+_MIN_CORRELATION = 0.1
+_MIN_PAIRS = 500
+#: Correlation of the changes of the VPD column and of e_s(T) (1 - RH / 100) at the best
+#: shift of tair that marks the VPD as written from this very temperature record: then
+#: the two agree to the written digits (our choice; two sensors, even side by side,
+#: differ by their noise and response times, and their changes agree less closely, so a
+#: tair from another sensor or height than the humidity probe's is never named).
+_SAME_SENSOR = 0.98
+#: Correlation of a month's sunlit changes of NEE and Rg beyond which the month's light
+#: response is clear, either way [1] (with 3 standard errors of Fisher's z): a month of
+#: active vegetation has a negative one (more light, more uptake, within the record),
+#: a dormant month one near 0 (its respiration follows temperature, hours behind the
+#: light, and the random error of the changes dominates). Our choice.
+_CLEAR_RESPONSE = 0.2
+#: Sunlit pairs a month needs to be judged (about 10 days of half-hours with the sun up).
+_MONTH_PAIRS = 100
+
+
+def _daily_ranges(values: np.ndarray, per_day: int, usable: np.ndarray) -> np.ndarray:
+    """Max minus min of each whole day (calendar rows) where `usable`."""
+    days = values.size // per_day
+    grid = values[:days * per_day].reshape(days, per_day)
+    with np.errstate(invalid="ignore"):
+        return (np.nanmax(grid[usable], axis=1) - np.nanmin(grid[usable], axis=1))
+
+
+def swapped_temperatures(tair, tsoil, interval_minutes: float, first_offset: int = 0,
+                         columns=None) -> str | None:
+    """A message where the soil column swings more than the air column, or None.
+
+    Parameters
+    ----------
+    tair, tsoil : array_like
+        Air and soil temperature of each record [°C] (NaN = missing), one length.
+    interval_minutes : float
+        Record interval [min].
+    first_offset : int, optional
+        Records from the first record back to the start of its day, so that days are
+        calendar days (0 where the record starts at midnight).
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where the ranges fit, or fewer than 14 days have two
+        thirds of both temperatures.
+
+    Notes
+    -----
+    The median over days of each column's daily range (maximum minus minimum) is
+    compared. A soil probe at depth z keeps exp(-z / d) of the surface's diurnal
+    amplitude, d about 0.1 m (see :data:`SOIL_RANGE_RATIO`); where the soil column's
+    median range exceeds the air's 1.5 times and by more than 1 K, the two columns are
+    named as likely swapped. Only a probe at the surface of bare, dry soil swings so
+    much, so this only warns.
+
+    References
+    ----------
+    Hillel, D. (1998). Environmental Soil Physics. Academic Press, ch. 12 (m).
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 8 (m).
+    """
+    tair = np.asarray(tair, dtype=float)
+    tsoil = np.asarray(tsoil, dtype=float)
+    per_day = int(round(1440.0 / interval_minutes))
+    if per_day < 4 or tair.size != tsoil.size:
+        return None
+    pad = np.full(int(first_offset) % per_day, np.nan)
+    air, soil = np.concatenate([pad, tair]), np.concatenate([pad, tsoil])
+    both = np.isfinite(air) & np.isfinite(soil)
+    days = both.size // per_day
+    usable = both[:days * per_day].reshape(days, per_day).sum(axis=1) >= (2 * per_day) // 3
+    if usable.sum() < _MIN_DAYS:
+        return None
+    air, soil = np.where(both, air, np.nan), np.where(both, soil, np.nan)
+    air_range = float(np.median(_daily_ranges(air, per_day, usable)))
+    soil_range = float(np.median(_daily_ranges(soil, per_day, usable)))
+    if not (soil_range > SOIL_RANGE_RATIO * air_range
+            and soil_range - air_range > _SOIL_RANGE_EXCESS):
+        return None
+    names = columns or {}
+    air_column, soil_column = names.get("tair", "tair"), names.get("tsoil", "tsoil")
+    return (f"soil temperature (column {soil_column!r}) swings a median {soil_range:.1f} K "
+            f"a day, the air temperature (column {air_column!r}) {air_range:.1f} K, over "
+            f"{int(usable.sum())} days: heat conduction damps the soil's daily cycle with "
+            "depth (to exp(-z / 0.1 m) of the surface's), so a soil swinging more than the "
+            "air is a probe at the surface of bare, dry soil or, far more often, the two "
+            "columns swapped: if so, exchange tair and tsoil in [input.columns]")
+
+
+def _correlation(a: np.ndarray, b: np.ndarray, minimum: int = _MIN_PAIRS) -> tuple[float, int]:
+    """Pearson correlation of the pairs both present and their count (NaN below `minimum`)."""
+    ok = np.isfinite(a) & np.isfinite(b)
+    count = int(ok.sum())
+    if count < minimum:
+        return math.nan, count
+    x, y = a[ok] - a[ok].mean(), b[ok] - b[ok].mean()
+    # sums of products, not BLAS dot products: the same bits on every CPU and thread count
+    scale = math.sqrt(float(np.sum(x * x)) * float(np.sum(y * y)))
+    return (float(np.sum(x * y)) / scale if scale > 0 else math.nan), count
+
+
+def _decide(scores: dict):
+    """The shift whose correlation clearly beats the same record's, or None.
+
+    `scores` maps a shift k [records] to (correlation, pairs), the correlation signed so
+    that the physical relation is positive. Returns (k, its correlation, that of k = 0,
+    Fisher z difference in standard errors) where k is not 0, its correlation reaches
+    :data:`_MIN_CORRELATION` and its Fisher z exceeds that of k = 0 by
+    :data:`_LAG_STANDARD_ERRORS` standard errors (sqrt(2 / (n - 3))); otherwise None.
+    """
+    if not all(math.isfinite(v) for v, _ in scores.values()):
+        return None
+    best = max(scores, key=lambda k: scores[k][0])
+    strength, count = scores[best]
+    if best == 0 or strength < _MIN_CORRELATION:
+        return None
+    z_best = math.atanh(min(strength, 0.999999))
+    z_zero = math.atanh(max(min(scores[0][0], 0.999999), -0.999999))
+    error = math.sqrt(2.0 / (min(count, scores[0][1]) - 3))
+    if z_best - z_zero <= _LAG_STANDARD_ERRORS * error:
+        return None
+    return best, strength, scores[0][0], (z_best - z_zero) / error
+
+
+def tair_lag(tair, rh, vpd, interval_minutes: float, columns=None) -> str | None:
+    """A message where the air temperature fits the humidity columns shifted, or None.
+
+    Parameters
+    ----------
+    tair : array_like
+        Air temperature of each record [°C].
+    rh : array_like
+        Relative humidity of each record [%].
+    vpd : array_like
+        Vapour pressure deficit of each record [hPa], as the file gives it.
+    interval_minutes : float
+        Record interval [min].
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where the VPD implied by RH and the air temperature of
+        the same record follows the VPD column best (always so for a VPD derived from
+        RH and tair), or the changes cannot tell.
+
+    Notes
+    -----
+    VPD = e_s(T) (1 - RH / 100) holds at one moment (Campbell & Norman 1998, ch. 3
+    (m)); a humidity probe's temperature and a separate air-temperature sensor both
+    answer within minutes, far less than a record. The changes from record to record
+    of the VPD column are correlated with those of e_s(T) (1 - RH / 100) computed with
+    the air temperature ``k`` records later; where a ``k`` other than 0 correlates
+    clearly better (3 standard errors of Fisher's z, as :func:`nee_lag`) and to 0.98 or
+    more (the VPD column written from this very temperature, :data:`_SAME_SENSOR`), the
+    tair column is named as shifted against RH and VPD. An air temperature from another
+    sensor than the humidity probe's fits less closely at every shift and is left alone,
+    unless its daily cycle trails the probe's by whole records (a sensor below a canopy,
+    say), which no record can tell from a shifted clock.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 3 (m).
+    """
+    tair, rh, vpd = (np.asarray(v, dtype=float) for v in (tair, rh, vpd))
+    if tair.size < 3 or not tair.size == rh.size == vpd.size or interval_minutes <= 0:
+        return None
+    most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
+    scores = {}
+    d_vpd = np.diff(vpd)
+    for k in range(-most, most + 1):
+        shifted = np.full(tair.size, np.nan)
+        if k >= 0:
+            shifted[:tair.size - k] = tair[k:]
+        else:
+            shifted[-k:] = tair[:k]
+        with np.errstate(invalid="ignore", over="ignore"):
+            implied = vpd_from_rh(rh, shifted)
+        r, count = _correlation(np.diff(implied), d_vpd)
+        scores[k] = (r, count)
+    found = _decide(scores)
+    if found is None or found[1] < _SAME_SENSOR:
+        return None
+    best, strength, same, apart = found
+    names = columns or {}
+    later = "later" if best > 0 else "earlier"
+    return (f"air temperature (column {names.get('tair', 'tair')!r}) matches the VPD "
+            f"(column {names.get('vpd', 'vpd')!r}) and RH (column {names.get('rh', 'rh')!r}) "
+            f"best {abs(best)} record(s) ({abs(best) * interval_minutes:g} min) {later} "
+            f"(correlation of the changes of VPD and e_s(T) (1 - RH / 100) {strength:.2f} "
+            f"there, {same:.2f} in the same record, {apart:.0f} standard errors apart): VPD holds at one "
+            f"moment, so the tair column looks shifted by {abs(best)} record(s) against "
+            "the humidity columns (a second logger's clock); align the columns in a copy of "
+            "the file")
+
+
+def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | None:
+    """A message where NEE follows Rg by whole records, or None.
+
+    Parameters
+    ----------
+    nee : array_like
+        NEE of each record [µmol m-2 s-1] (NaN = missing or rejected).
+    rg : array_like
+        Global radiation of each record [W m-2].
+    potential : array_like
+        Potential radiation of each record [W m-2]; only changes between two records
+        with the sun up count.
+    interval_minutes : float
+        Record interval [min].
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where the changes of NEE and Rg of the same record
+        correlate best (or too few sunlit pairs, or too weak a correlation to tell).
+
+    Notes
+    -----
+    Leaf photosynthesis follows a change of light within seconds to minutes (its
+    light reactions at once, Rubisco activation and stomata within minutes; Lambers,
+    Chapin & Pons 2008, Plant Physiological Ecology, ch. 2 (m)), and the tower sees
+    the flux of its footprint within a minute or two of transport, both far shorter
+    than a 30- or 60-minute record. The change of NEE from one record to the next
+    therefore correlates (negatively: more light, more uptake) with the change of Rg
+    of the same records more than with that of records before or after; a passing
+    cloud moves both at once. Where the correlation with Rg changes ``k`` records
+    earlier or later is clearly stronger (its Fisher z larger by 3 standard errors,
+    sqrt(2 / (n - 3)) each, within two hours either way), the NEE column is named as
+    shifted: an end-stamped flux file joined with a start-stamped weather file reads
+    like this. First differences leave out the smooth diurnal course, whose
+    afternoon depression (VPD) would pull a lag of the raw series.
+
+    References
+    ----------
+    Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
+    2nd ed. Springer, ch. 2 (m).
+    """
+    nee = np.asarray(nee, dtype=float)
+    rg = np.asarray(rg, dtype=float)
+    potential = np.asarray(potential, dtype=float)
+    if nee.size < 3 or nee.size != rg.size or interval_minutes <= 0:
+        return None
+    d_nee, d_rg = np.diff(nee), np.diff(rg)
+    sunlit = (potential[1:] > 0) & (potential[:-1] > 0)
+    d_rg = np.where(sunlit, d_rg, np.nan)
+    most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
+    scores = {}
+    for k in range(-most, most + 1):
+        # NEE change of record t + k against the Rg change of record t
+        if k >= 0:
+            a, b = d_nee[k:], d_rg[:d_rg.size - k]
+        else:
+            a, b = d_nee[:k], d_rg[-k:]
+        r, count = _correlation(a, b)
+        scores[k] = (-r, count)
+    found = _decide(scores)
+    if found is None:
+        return None
+    best, strength, same, apart = found
+    names = columns or {}
+    minutes = abs(best) * interval_minutes
+    later = "later" if best > 0 else "earlier"
+    return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
+            f"{names.get('rg', 'rg')!r}) {abs(best)} record(s) ({minutes:g} min) {later} "
+            f"than the same record (correlation of the sunlit changes {strength:.2f} there, "
+            f"{same:.2f} in the same record, {apart:.0f} standard errors apart): photosynthesis follows light within minutes, so the "
+            f"NEE column looks shifted by {abs(best)} record(s) against the drivers (a "
+            "flux file stamped at interval ends joined with a weather file stamped at "
+            "starts reads like this); align the columns in a copy of the file")
+
+
+def months_rising_with_light(nee, rg, potential, stamps, columns=None) -> str | None:
+    """A message naming months whose NEE rises with light while other months' falls.
+
+    Parameters
+    ----------
+    nee : array_like
+        NEE of each record [µmol m-2 s-1] (NaN = missing or rejected).
+    rg : array_like
+        Global radiation of each record [W m-2].
+    potential : array_like
+        Potential radiation of each record [W m-2]; only changes between two records
+        with the sun up count.
+    stamps : pandas.DatetimeIndex
+        Interval starts of the records (the months).
+    columns : dict, optional
+        Canonical name -> file column, to name the column in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text, or None where no month's NEE clearly rises with light or no
+        month's clearly falls with it.
+
+    Notes
+    -----
+    Photosynthesis follows light within minutes (see :func:`nee_lag`), so in a month of
+    active vegetation the changes of NEE from record to record correlate negatively with
+    those of Rg (a cloud passing: less light, less uptake, NEE up). A month whose
+    correlation is clearly positive (above 0.2 and 3 standard errors of Fisher's z,
+    sqrt(1 / (n - 3)), above 0) in a record holding clearly negative months as well has
+    NEE of the opposite sign there: a sign convention that changed within the record
+    (a new logger program, a second processing's file). The whole record of the
+    opposite sign is the reader's refusal (:mod:`fluxpart.unit_checks`). A month without
+    photosynthesis whose respiration follows the sunlit surface's temperature within a
+    record (a rain pulse on bare, dark soil (m)) could rise with light too, which is one
+    reason this only warns.
+
+    References
+    ----------
+    Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
+    2nd ed. Springer, ch. 2 (m).
+    """
+    nee = np.asarray(nee, dtype=float)
+    rg = np.asarray(rg, dtype=float)
+    potential = np.asarray(potential, dtype=float)
+    if nee.size < 3 or not nee.size == rg.size == potential.size == len(stamps):
+        return None
+    d_nee, d_rg = np.diff(nee), np.diff(rg)
+    usable = ((potential[1:] > 0) & (potential[:-1] > 0) & np.isfinite(d_nee)
+              & np.isfinite(d_rg))
+    index = pd.DatetimeIndex(stamps[1:])
+    months = index.year.to_numpy() * 12 + index.month.to_numpy() - 1
+    rising, falling = [], []
+    for code in np.unique(months[usable]):
+        chosen = usable & (months == code)
+        month = f"{code // 12:04d}-{code % 12 + 1:02d}"
+        count = int(chosen.sum())
+        if count < _MONTH_PAIRS:
+            continue
+        r, _ = _correlation(d_nee[chosen], d_rg[chosen], _MONTH_PAIRS)
+        if not math.isfinite(r) or abs(r) < _CLEAR_RESPONSE:
+            continue
+        if abs(math.atanh(r)) * math.sqrt(count - 3) <= _LAG_STANDARD_ERRORS:
+            continue
+        (rising if r > 0 else falling).append((month, r))
+    if not rising or not falling:
+        return None
+    shown = ", ".join(f"{month} ({r:+.2f})" for month, r in rising)
+    return (f"NEE (column {(columns or {}).get('nee', 'nee')!r}) rises with light in "
+            f"{len(rising)} month(s): {shown} (correlation of the sunlit changes of NEE and "
+            f"Rg), where {len(falling)} other month(s) show the uptake that light brings "
+            "within minutes (a negative correlation): NEE there looks of the opposite sign "
+            "(a sign convention changed within the record); check the column and flip "
+            "those months in a copy of the file")

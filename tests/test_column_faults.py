@@ -1,0 +1,213 @@
+"""Swapped air and soil temperature, NEE shifted against Rg (fluxpart.column_faults).
+
+Known-truth recovery on invented records: the soil follows the analytic solution of heat
+conduction under a sinusoidal surface temperature (amplitude exp(-z / d), lag z / d
+radians, d = sqrt(2 kappa / omega); Campbell & Norman 1998, An Introduction to
+Environmental Biophysics, ch. 8 (m)); NEE follows a rectangular light response without
+delay (photosynthesis answers light within minutes; Lambers, Chapin & Pons 2008, Plant
+Physiological Ecology, ch. 2 (m)); VPD = e_s(T) (1 - RH / 100) at one moment (Campbell &
+Norman 1998, ch. 3 (m)), e_s from fluxpart.variables (Magnus form, checked against its
+handbook values in test_variables).
+"""
+
+import numpy as np
+import pandas as pd
+
+from fluxpart.column_faults import (
+    SOIL_RANGE_RATIO,
+    months_rising_with_light,
+    nee_lag,
+    swapped_temperatures,
+    tair_lag,
+)
+from fluxpart.preflight import _column_faults
+from fluxpart.variables import vpd_from_rh
+
+STEP = 30
+PER_DAY = 1440 // STEP
+DAYS = 120
+OMEGA = 2 * np.pi / 86400.0                  # diurnal angular frequency [s-1]
+KAPPA = 5e-7                                 # thermal diffusivity of a moist loam [m2 s-1] (m)
+DAMPING = np.sqrt(2 * KAPPA / OMEGA)         # damping depth, about 0.12 m
+
+
+def temperatures(depth, surface_amplitude=5.0, air_amplitude=5.0, seed=0):
+    """Air and soil temperature [°C] at `depth` [m] under a sinusoidal surface."""
+    rng = np.random.default_rng(seed)
+    seconds = np.arange(DAYS * PER_DAY) * STEP * 60.0
+    day = seconds / 86400.0
+    season = 12.0 + 6.0 * np.sin(2 * np.pi * day / 365.0)
+    phase = OMEGA * seconds - 2 * np.pi * 14.0 / 24.0 + np.pi / 2   # air peaks at 14 h
+    weather = np.repeat(rng.normal(0, 1.0, DAYS), PER_DAY)
+    air = season + weather + air_amplitude * np.sin(phase) + rng.normal(0, 0.2, seconds.size)
+    surface_phase = phase + 2 * np.pi * 1.0 / 24.0                   # surface peaks at 13 h
+    soil = (season + 1.0 + surface_amplitude * np.exp(-depth / DAMPING)
+            * np.sin(surface_phase - depth / DAMPING))
+    return air, soil
+
+
+def test_damping_depth_is_a_typical_soils():
+    # d = sqrt(2 kappa / omega) is about 0.1 m for a typical soil (Hillel 1998 (m))
+    assert 0.08 < DAMPING < 0.15
+
+
+def test_soil_at_five_cm_in_place_is_quiet_and_swapped_is_named():
+    air, soil = temperatures(0.05)
+    assert swapped_temperatures(air, soil, STEP) is None
+    text = swapped_temperatures(soil, air, STEP, columns={"tair": "t_a", "tsoil": "t_s"})
+    assert text is not None
+    assert "'t_s'" in text and "'t_a'" in text and "swapped" in text
+
+
+def test_shallow_probe_under_a_surface_swinging_like_the_air_is_quiet():
+    # at 2 cm the probe keeps exp(-0.02 / d) of the surface's amplitude, < 1: never above
+    # the air's where the surface swings like the air, so no warning
+    air, soil = temperatures(0.02, surface_amplitude=5.0)
+    assert swapped_temperatures(air, soil, STEP) is None
+
+
+def test_bare_surface_beyond_the_ratio_is_named_as_either():
+    # a probe at 2 cm in bare, dry soil whose surface swings twice the air: physics allows
+    # it, and the warning names that case as well as the swap
+    air, soil = temperatures(0.02, surface_amplitude=10.0)
+    soil_range = 10.0 * 2 * np.exp(-0.02 / DAMPING)
+    assert soil_range > SOIL_RANGE_RATIO * 10.0
+    text = swapped_temperatures(air, soil, STEP)
+    assert text is not None and "bare, dry soil" in text
+
+
+def test_too_few_days_cannot_tell():
+    air, soil = temperatures(0.05)
+    n = 10 * PER_DAY
+    assert swapped_temperatures(soil[:n], air[:n], STEP) is None
+
+
+def test_days_counted_from_midnight():
+    # a record starting at 06:00 still finds the swap (days are calendar days)
+    air, soil = temperatures(0.05)
+    start = 12
+    assert swapped_temperatures(soil[start:], air[start:], STEP, first_offset=start)
+
+
+def light_record(seed=0, noise=1.0):
+    """Invented Rg with passing clouds, its potential radiation and an undelayed NEE."""
+    rng = np.random.default_rng(seed)
+    n = DAYS * PER_DAY
+    hours = (np.arange(n) % PER_DAY) * STEP / 60.0 + STEP / 120.0
+    potential = np.clip(1100.0 * np.sin(np.pi * (hours - 6.0) / 12.0), 0.0, None)
+    clouds = np.clip(0.7 + rng.normal(0, 0.25, n), 0.1, 1.0)
+    rg = potential * clouds
+    gpp = 0.05 * rg * 25.0 / (0.05 * rg + 25.0)       # rectangular light response
+    nee = 3.0 - gpp + rng.normal(0, noise, n)
+    return nee, rg, potential
+
+
+def test_aligned_nee_is_quiet():
+    nee, rg, potential = light_record()
+    assert nee_lag(nee, rg, potential, STEP) is None
+
+
+def test_nee_one_record_late_is_named():
+    nee, rg, potential = light_record()
+    late = np.concatenate([[np.nan], nee[:-1]])
+    text = nee_lag(late, rg, potential, STEP, columns={"nee": "co2", "rg": "sw"})
+    assert text is not None and "1 record(s) (30 min) later" in text and "'co2'" in text
+
+
+def test_nee_two_records_early_is_named():
+    nee, rg, potential = light_record()
+    early = np.concatenate([nee[2:], [np.nan, np.nan]])
+    text = nee_lag(early, rg, potential, STEP)
+    assert text is not None and "2 record(s) (60 min) earlier" in text
+
+
+def test_noise_that_hides_the_light_response_cannot_tell():
+    nee, rg, potential = light_record(noise=200.0)
+    late = np.concatenate([[np.nan], nee[:-1]])
+    assert nee_lag(late, rg, potential, STEP) is None
+
+
+def test_preflight_names_both_faults():
+    air, soil = temperatures(0.05)
+    nee, rg, potential = light_record()
+    index = pd.date_range("2021-03-01", periods=air.size, freq=f"{STEP}min")
+    frame = pd.DataFrame({"tair": soil, "tsoil": air,
+                          "nee": np.concatenate([[np.nan], nee[:-1]]), "rg": rg}, index=index)
+    stages = [f.stage for f in _column_faults(frame, potential, STEP)]
+    assert stages == ["input (tair, tsoil)", "input (nee)"]
+    frame = pd.DataFrame({"tair": air, "tsoil": soil, "nee": nee, "rg": rg}, index=index)
+    assert _column_faults(frame, potential, STEP) == []
+
+
+def humidity_record(seed=0):
+    """Invented air temperature, RH, and the VPD a logger writes from both."""
+    air, _ = temperatures(0.05, seed=seed)
+    rng = np.random.default_rng(seed + 1)
+    phase = 2 * np.pi * (np.arange(air.size) % PER_DAY) / PER_DAY
+    rh = np.clip(70.0 - 20.0 * np.sin(phase - np.pi / 2) + rng.normal(0, 3.0, air.size),
+                 15.0, 100.0)
+    return air, rh, vpd_from_rh(rh, air)
+
+
+def test_vpd_written_from_the_same_temperature_is_quiet():
+    air, rh, vpd = humidity_record()
+    assert tair_lag(air, rh, vpd, STEP) is None
+
+
+def test_air_temperature_an_hour_late_against_the_humidity_is_named():
+    air, rh, vpd = humidity_record()
+    late = np.concatenate([[np.nan, np.nan], air[:-2]])
+    text = tair_lag(late, rh, vpd, STEP, columns={"tair": "ta", "vpd": "vpd_k", "rh": "hum"})
+    assert text is not None and "2 record(s) (60 min) later" in text and "'ta'" in text
+
+
+def test_air_temperature_of_another_sensor_is_quiet():
+    # a second, slower sensor (first-order response, 20 min time constant) with its own
+    # 0.3 K noise: the VPD was written from the humidity probe's temperature, not from
+    # this one, and the same record still fits it best
+    air, rh, vpd = humidity_record()
+    rng = np.random.default_rng(5)
+    weight = np.exp(-STEP / 20.0)
+    other = air.copy()
+    for i in range(1, other.size):
+        other[i] = weight * other[i - 1] + (1 - weight) * air[i]
+    other = other + rng.normal(0, 0.3, other.size)
+    assert tair_lag(other, rh, vpd, STEP) is None
+
+
+def stamped_light_record(**kwargs):
+    nee, rg, potential = light_record(**kwargs)
+    return nee, rg, potential, pd.date_range("2021-03-01", periods=nee.size, freq=f"{STEP}min")
+
+
+def test_months_of_the_opposite_sign_are_named():
+    nee, rg, potential, stamps = stamped_light_record()
+    flipped = np.where(stamps >= "2021-05-01", -nee, nee)
+    text = months_rising_with_light(flipped, rg, potential, stamps, columns={"nee": "co2"})
+    assert text is not None and "'co2'" in text
+    assert "2021-05" in text and "2021-06" in text and "2021-03" not in text
+
+
+def test_one_sign_throughout_is_quiet():
+    nee, rg, potential, stamps = stamped_light_record()
+    assert months_rising_with_light(nee, rg, potential, stamps) is None
+    # the whole record of the opposite sign is the reader's refusal, not named here
+    assert months_rising_with_light(-nee, rg, potential, stamps) is None
+
+
+def test_dormant_months_beside_active_ones_are_quiet():
+    # months without photosynthesis: respiration and noise only, no light response
+    nee, rg, potential, stamps = stamped_light_record()
+    rng = np.random.default_rng(3)
+    dormant = np.where(stamps < "2021-04-15", 1.0 + rng.normal(0, 1.0, nee.size), nee)
+    assert months_rising_with_light(dormant, rg, potential, stamps) is None
+
+
+def test_months_of_an_hourly_record_are_judged():
+    # an hourly month holds about 360 sunlit pairs: fewer than the shift checks' minimum
+    # of 500 over the record, enough for a month's sign (regression: hourly months were
+    # never judged)
+    nee, rg, potential, stamps = stamped_light_record()
+    flipped = np.where(stamps >= "2021-05-01", -nee, nee)
+    text = months_rising_with_light(flipped[::2], rg[::2], potential[::2], stamps[::2])
+    assert text is not None and "2021-05" in text
