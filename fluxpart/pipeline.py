@@ -713,6 +713,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     outcomes = {name: (*outcome[:3], _shifted(outcome[3], form.shift), outcome[4])
                 for name, outcome in outcomes.items()}
     too_calm, nee_measured, filled, night, day = outcomes["central"]
+    day_evidence = _daytime_driver_evidence(frame, screened, filled_drivers,
+                                            outcomes["central"], is_night, temperature, delay,
+                                            config)
     fell_back = day.parameters["e0_source"] == "fallback"
     if config.e0_fallback is None and fell_back.any():
         warnings.append(
@@ -768,9 +771,11 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         sigma, error_model = np.full(len(timeseries), np.nan), None
         warnings.append(f"random error of NEE not estimated: {error}")
     timeseries = timeseries.assign(nee_random_error=sigma)
-    daily, monthly, annual, gapfill_model = _uncertainty(
+    daily, monthly, annual, gapfill_model, driver_notes = _uncertainty(
         daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night, night, day,
-        temperature, interval, config, year_keys, night_fits, error_model, form, delay)
+        temperature, interval, config, year_keys, night_fits, error_model, form, delay,
+        day_evidence)
+    warnings.extend(driver_notes)
     parameters["gapfill_error_model"] = gapfill_model
     # a method that could not fit has no sums, so no uncertainty of them either
     unfitted = method_failure.failed_methods(night, day)
@@ -932,11 +937,13 @@ def _shifted(night, shift):
 
 def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night,
                  night, day, temperature, interval, config, year_keys, night_fits,
-                 error_model=None, form=None, delay=0):
+                 error_model=None, form=None, delay=0, day_evidence=None):
     """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals.
 
     `night_fits`: nighttime fits on the central measured NEE and the input's temperature
-    columns (by driver), reused for the other driver's Reco.
+    columns (by driver), reused for the other driver's Reco. `day_evidence`: (statistic,
+    other temperature's name) of :func:`_daytime_driver_evidence`, or None. Also returns
+    the warning of a temperature choice the daytime records contradict (a list).
     """
     index = timeseries.index
     nee_measured = timeseries["nee_measured"].to_numpy(dtype=float)
@@ -1001,7 +1008,15 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         nee_measured=nee_measured,
         fill_window_days=timeseries["nee_fill_window_days"].to_numpy(dtype=float),
         fill_noise_sigma=None if error_model is None else error_model.predict(
-            timeseries["nee_filled"].to_numpy(dtype=float)), respiration_form=form)
+            timeseries["nee_filled"].to_numpy(dtype=float)), respiration_form=form,
+        day_driver_statistic=None if day_evidence is None else day_evidence[0],
+        day_evidence_critical=temperature_choice.DAYTIME_EVIDENCE_Z)
+    notes = []
+    if (other_reco is not None and day_evidence is not None and inputs.driver_weight == 0.5
+            and abs(day_evidence[0]) > temperature_choice.DAYTIME_EVIDENCE_Z):
+        central = f"{temperature} delayed by {delay * interval / 60:g} h" if delay else temperature
+        notes.append(temperature_choice.conflict_note(central, day_evidence[1],
+                                                      day_evidence[0]))
     percentiles = config.ustar_scenarios
     tables = []
     for table, keys in ((daily, index.normalize()),
@@ -1016,7 +1031,36 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                                           draws=config.random_error_draws, seed=config.seed,
                                           year_keys=year_keys)
     annual = annual.join(uncertainty.uncertainty_budget(annual, random, parts))
-    return tables[0], tables[1], annual, gapfill_model
+    return tables[0], tables[1], annual, gapfill_model, notes
+
+
+def _daytime_driver_evidence(frame, screened, filled_drivers, central, is_night, temperature,
+                             delay, config):
+    """The daytime records' evidence on the respiration temperature, or None.
+
+    The daytime method fitted again with the other temperature (undelayed air
+    temperature for a delayed one) and the central run's light-response curvature;
+    returns (:func:`temperature_choice.daytime_evidence`, the other temperature's name).
+    """
+    _, nee_measured, _, night, day = central
+    if method_failure.failed(day) or method_failure.failed(night):
+        return None
+    other = "tair" if delay else {"tair": "tsoil", "tsoil": "tair"}[temperature]
+    if f"{other}_filled" not in filled_drivers.columns:
+        return None
+    other_filled = _respiration_temperature(filled_drivers, other, 0, True)
+    if not np.isfinite(other_filled).any():
+        return None
+    try:
+        other_day = _fit_daytime(frame, nee_measured, screened, filled_drivers, other_filled,
+                                 is_night, config, float(day.parameters["curvature"].iloc[0]),
+                                 night)
+    except FluxpartError:
+        return None
+    statistic = temperature_choice.daytime_evidence(
+        nee_measured, ~np.asarray(is_night, dtype=bool), day.reco - day.gpp,
+        other_day.reco - other_day.gpp, frame.index.normalize())
+    return statistic, other
 
 
 def _scenario_spread(annual, outcomes, index, interval, year_keys) -> pd.DataFrame:

@@ -85,6 +85,7 @@ __all__ = [
     "bic_weight",
     "carbon_accounting_units",
     "draw_random_errors",
+    "combined_driver_weight",
     "driver_weight",
     "e0_sensitivity",
     "e0_sigma",
@@ -1771,6 +1772,50 @@ def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
     return bic_weight(laplace_delta_bic(sad_other, sad_central, int(use.sum())))
 
 
+def combined_driver_weight(night_weight: float, day_statistic, critical: float) -> float:
+    """The weight of the other respiration temperature, night and day evidence together.
+
+    Parameters
+    ----------
+    night_weight : float
+        :func:`driver_weight` from the night records [1].
+    day_statistic : float or None
+        :func:`fluxpart.partition.temperature_choice.daytime_evidence` (positive where
+        the temperature in use fits the daytime records better) [1]; None or NaN where
+        not computed.
+    critical : float
+        Its critical value [1] (1.96).
+
+    Returns
+    -------
+    float
+        1/2 where the two lines of evidence favour different temperatures, the daytime
+        one significantly (|statistic| above `critical`); `night_weight` otherwise.
+
+    Notes
+    -----
+    The night weight comes from a BIC over records, which assumes one of the two
+    models true and independent residuals: on a site whose respiration follows
+    neither temperature (a soil probe deeper than the respiring layer, plant
+    respiration on air beside soil respiration on soil temperature), it is decisive
+    for a model that is still wrong by day. Where the daytime records contradict it,
+    the choice is open: equal weights, the equal prior of model averaging (Burnham &
+    Anderson 2002, ch. 4 (m)), which makes the driver part |Δ|/√2 of the difference Δ
+    the other temperature makes.
+
+    References
+    ----------
+    Burnham, K. P. & Anderson, D. R. (2002). Model Selection and Multimodel Inference,
+    2nd ed. Springer.
+    """
+    if day_statistic is None or not np.isfinite(day_statistic):
+        return night_weight
+    if (night_weight < 0.5 and day_statistic < -critical) \
+            or (night_weight > 0.5 and day_statistic > critical):
+        return 0.5
+    return night_weight
+
+
 def laplace_delta_bic(sad_model: float, sad_reference: float, records: int,
                       extra_parameters: int = 0) -> float:
     """BIC of a model minus that of a reference, both fitted to the same records,
@@ -1835,7 +1880,8 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
                   temperature, nighttime_result, daytime_parameters, gapfill_model, *,
                   rref_window_days=4.0, other_driver_reco=None,
                   nee_measured=None, fill_window_days=None,
-                  fill_noise_sigma=None, respiration_form=None) -> UncertaintyInputs:
+                  fill_noise_sigma=None, respiration_form=None, day_driver_statistic=None,
+                  day_evidence_critical=1.96) -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -1873,6 +1919,11 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
     respiration_form : FormAverage, optional
         Both respiration forms' nighttime Reco, the weight and the share applied
         (:func:`fluxpart.partition.respiration_form.average_forms`).
+    day_driver_statistic : float, optional
+        The daytime records' evidence on the temperature
+        (:func:`fluxpart.partition.temperature_choice.daytime_evidence`); where it
+        contradicts the night records, the driver weight is 1/2
+        (:func:`combined_driver_weight`, with `day_evidence_critical`).
 
     Returns
     -------
@@ -1907,8 +1958,9 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         form_spread=0.0 if respiration_form is None else respiration_form.spread_factor,
         driver_delta=None if other_driver_reco is None else
         np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
-        driver_weight=0.0 if other_driver_reco is None else driver_weight(
-            nee_measured, is_night, fluxes["reco_nighttime"].to_numpy(float), other_driver_reco))
+        driver_weight=0.0 if other_driver_reco is None else combined_driver_weight(
+            driver_weight(nee_measured, is_night, fluxes["reco_nighttime"].to_numpy(float),
+                          other_driver_reco), day_driver_statistic, day_evidence_critical))
 
 
 def _nan_to_zero(values) -> np.ndarray:

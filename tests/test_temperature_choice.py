@@ -304,3 +304,62 @@ def test_a_failed_soil_temperature_fit_is_warned_with_the_part_left_out():
     assert np.isnan(result.annual.loc[2021, "reco_uncertainty_temperature_driver"])
     text = [w for w in result.warnings if w.startswith("respiration temperature: tair used")]
     assert len(text) == 1 and "reco_uncertainty_temperature_driver NaN" in text[0]
+
+
+# --------------------------------------------------------------------------- #
+# Daytime evidence on the temperature (since 0.19.0)
+# --------------------------------------------------------------------------- #
+def _day_records(days=60, per_day=24, seed=4):
+    """Invented daytime records (known truth): NEE, a model close to it and a worse one."""
+    rng = np.random.default_rng(seed)
+    index = pd.date_range("2021-06-01", periods=days * per_day, freq="30min")
+    truth = -8.0 * np.sin(np.linspace(0, np.pi, per_day))[np.arange(index.size) % per_day]
+    nee = truth + rng.laplace(0.0, 1.0, index.size)
+    better = truth + rng.normal(0.0, 0.1, index.size)
+    worse = truth + 1.5 + rng.normal(0.0, 0.1, index.size)
+    return index, nee, better, worse
+
+
+def test_daytime_evidence_is_the_day_blocked_paired_t_statistic():
+    """The statistic is the one-sample t statistic of the daily sums of the absolute-loss
+    differential (Diebold & Mariano 1995, variance over whole days), as computed by
+    scipy.stats.ttest_1samp (a general-purpose reference library)."""
+    from scipy import stats
+
+    from fluxpart.partition.temperature_choice import daytime_evidence
+    index, nee, better, worse = _day_records()
+    day = np.ones(index.size, dtype=bool)
+    t = daytime_evidence(nee, day, better, worse, index.normalize())
+    loss = np.abs(nee - worse) - np.abs(nee - better)
+    daily = pd.Series(loss).groupby(index.normalize().to_numpy()).sum()
+    assert t == pytest.approx(stats.ttest_1samp(daily, 0.0).statistic, rel=1e-12)
+    assert t > 5                                               # the central fits better
+    assert daytime_evidence(nee, day, worse, better, index.normalize()) == pytest.approx(-t)
+
+
+def test_daytime_evidence_undecided_and_too_few_days():
+    """Two equally good models give |t| within the 5 % point on most draws; fewer than
+    DAYTIME_EVIDENCE_MIN_DAYS days give NaN."""
+    from fluxpart.partition.temperature_choice import DAYTIME_EVIDENCE_Z, daytime_evidence
+    index, nee, better, _ = _day_records()
+    rng = np.random.default_rng(9)
+    day = np.ones(index.size, dtype=bool)
+    t = [daytime_evidence(nee, day, better + rng.normal(0, 0.1, index.size),
+                          better + rng.normal(0, 0.1, index.size), index.normalize())
+         for _ in range(40)]
+    assert np.mean(np.abs(t) <= DAYTIME_EVIDENCE_Z) >= 0.85    # ~95 % under equal fits
+    short = index < index[0] + pd.Timedelta(days=9)
+    assert np.isnan(daytime_evidence(nee, short, better, better + 1, index.normalize()))
+
+
+def test_combined_driver_weight_opens_the_choice_only_on_a_contradiction():
+    """Night and day evidence favouring different temperatures, the day's beyond its 5 %
+    point, give equal weights (the equal prior of model averaging, Burnham & Anderson
+    2002 (m)); agreement, an insignificant day statistic or none keep the night weight."""
+    from fluxpart.uncertainty import combined_driver_weight
+    assert combined_driver_weight(1e-30, -6.2, 1.96) == 0.5
+    assert combined_driver_weight(0.9, 3.0, 1.96) == 0.5
+    assert combined_driver_weight(1e-30, 6.2, 1.96) == 1e-30
+    assert combined_driver_weight(1e-30, -1.5, 1.96) == 1e-30
+    assert combined_driver_weight(0.2, float("nan"), 1.96) == 0.2
+    assert combined_driver_weight(0.2, None, 1.96) == 0.2
