@@ -50,6 +50,9 @@ INTERVALS_MINUTES = (30, 60)
 
 _RANGES_SHOWN = 5
 _OFFSET_AT_END = re.compile(r"(?:Z|[+-]\d{2}:?\d{2})$")
+#: A stamp cell that holds no date: empty, a negative number or one of at most five
+#: digits (a missing code such as -9999 in the time column)
+_NO_DATE = re.compile(r"\s*(?:-\d+(?:[.,]\d*)?|\+?\d{1,5}(?:[.,]\d*)?)?\s*")
 _HOUR_24 = (
     (re.compile(r"(?<!\d)24:00(:00)?(?!\d)"), lambda m: "00:00" + (m[1] or "")),
     (re.compile(r"(?<!\d)24(00)$"), lambda m: "00" + m[1]),
@@ -418,6 +421,22 @@ def _other_format(stamp: str, time_format: str) -> str:
     return ""
 
 
+def _swapped_day_month(failed: pd.Series, time_format: str) -> str:
+    """A hint where every failed stamp parses with %d and %m exchanged, else ''.
+
+    Stamps of month-first dates (06/13/2021) read under a day-first format parse up to
+    the 12th of each month, as the wrong dates, and fail from the 13th on.
+    """
+    if "%d" not in time_format or "%m" not in time_format:
+        return ""
+    swapped = (time_format.replace("%d", "\0").replace("%m", "%d").replace("\0", "%m"))
+    if pd.to_datetime(failed, format=swapped, errors="coerce").notna().all():
+        return ("the day and the month are exchanged (the stamps that parse up to there "
+                "were read as wrong dates): write time_format = "
+                f"{setting_text(swapped)}")
+    return ""
+
+
 def _fraction_hint(failed: pd.Series, time_format: str) -> str:
     """A hint where stamps that fail hold numbers with a decimal fraction (a decimal day
     of year or hour; integers saved from a table of floating-point numbers), else ''."""
@@ -500,6 +519,14 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             f"[input] time_format = {setting_text(time_format)} cannot be used: %p (AM/PM) "
             "applies only to a 12-hour %I, so with %H every PM stamp would be read as AM; "
             f"write time_format = {setting_text(time_format.replace('%H', '%I'))}")
+    if "%I" in time_format and "%p" not in time_format:
+        # strptime reads "01:00" under %I as 01:00 whether it was 1 AM or 1 PM: every
+        # afternoon record would land on the morning's stamp
+        raise TimestampError(
+            f"[input] time_format = {setting_text(time_format)} cannot be used: %I is the "
+            "hour of a 12-hour clock, which needs %p (AM/PM) beside it; without it 1 PM is "
+            "read as 1 AM: add %p where the stamps carry AM/PM, or write the hour as %H "
+            "(a 24-hour clock)")
     if time_format.endswith("Z") and not time_format.endswith("%Z") and time_zone is None:
         time_format = time_format[:-1] + "%z"       # "...%SZ": the Z of UTC, not a letter
     with_offset = _carries_offset(text, time_format)
@@ -555,6 +582,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = (f"; if the file has {'a units line' if skip == 1 else f'{skip} lines'} "
                     f"{'' if skip == 1 else '(units, processing) '}under the header, set "
                     f"[input] rows_after_header = {skip}")
+        elif _NO_DATE.fullmatch(text.iloc[first]) and not failed.all():
+            # a record whose stamp is empty or a bare number ("-9999"): a row written
+            # while the logger had no clock, or a missing code in the time column
+            hint = ("; a record without a date and time (an empty stamp or a missing "
+                    "code): give it its stamp or delete that line in a copy of the file")
+        elif _swapped_day_month(text[failed], time_format):
+            hint = "; " + _swapped_day_month(text[failed], time_format)
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
         elif "%Z" in time_format and re.search(r"\s[A-Za-z]{2,6}$", text.iloc[first]):
@@ -731,11 +765,60 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
             hint = (f"the stamps jump back by {back_days:.0f} days ({backwards.size} backward "
                     "step(s) in all): a logger clock reset or rows of another period; correct "
                     "or remove those rows in a copy of the file (sorting would misplace them)")
+        elif _midnight_of_the_day_it_ends(stamps, row):
+            hint = ("every record ending at midnight seems dated with the day it ends "
+                    "(00:00 after 23:30 of the same date): write midnight as 24:00 of that "
+                    "day or as 00:00 of the next day in a copy of the file (sorting would "
+                    "place each such record a day early)")
         else:
             hint = "sort a copy of the file by time"
         raise NonMonotonicTimestampError(
             f"stamps go backwards at {_where(source, lines, row)}: {text.iloc[row]!r} comes "
             f"after {text.iloc[row - 1]!r}; {hint}")
+
+
+def _scattered_seconds(stamps: pd.DatetimeIndex, steps: np.ndarray, describe,
+                       interval=None) -> str:
+    """The message where stamps are 30- or 60-minute records whose seconds scatter beyond
+    the rounding of :data:`JITTER_SECONDS` (a logger stamping the moment it writes each
+    record, seconds to a minute after the interval ends), else ''.
+
+    The test: most steps lie within a minute of one interval, and stamps off the whole
+    minute are common; such records are neither refused as another interval nor read at
+    clock times that drift by seconds from record to record.
+    """
+    if steps.size == 0:
+        return ""
+    candidates = INTERVALS_MINUTES if interval is None else (interval,)
+    for minutes in candidates:
+        near = np.abs(steps - minutes) < 1.0
+        if near.mean() < 0.5 or not (near & (steps != minutes)).any():
+            continue
+        seconds = np.asarray(stamps.second + stamps.microsecond / 1e6, dtype=float)
+        off = np.minimum(seconds, 60.0 - seconds)
+        far = np.flatnonzero(off > JITTER_SECONDS)
+        if far.size < 0.1 * len(stamps):
+            continue
+        first = int(far[0])
+        return (f"the stamps of these {minutes}-minute records carry seconds that vary "
+                f"from record to record ({stamps[first]:%Y-%m-%d %H:%M:%S} at "
+                f"{describe(first)}; {far.size} stamps more than {JITTER_SECONDS:g} s from "
+                f"a whole minute, up to {off.max():.0f} s): only stamps within "
+                f"{JITTER_SECONDS:g} s of a whole minute are rounded (clock jitter). A logger "
+                "that stamps the moment it writes each record? Write each stamp as the "
+                "whole minute of its interval's end (or start) in a copy of the file")
+    return ""
+
+
+def _midnight_of_the_day_it_ends(stamps: pd.DatetimeIndex, row: int) -> bool:
+    """Whether the stamp at `row`, which goes back, is 00:00 of the date of the stamp before
+    it, and every backward step of the file is such a midnight (a logger that dates the
+    record ending at midnight with the day that ends)."""
+    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(seconds=1))
+    back = np.flatnonzero(steps < 0) + 1
+    at_midnight = (stamps[back] == stamps[back].normalize())
+    same_date = stamps[back].normalize() == stamps[back - 1].normalize()
+    return bool(row in back and at_midnight.all() and same_date.all())
 
 
 def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> int:
@@ -766,6 +849,9 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
         typical = float(found[np.argmax(counts)])
         if typical not in INTERVALS_MINUTES:
             share = counts.max() / steps.size
+            seconds = _scattered_seconds(stamps, steps, describe)
+            if seconds:
+                raise SpacingError(seconds)
             raise SpacingError(f"the most common spacing between stamps is {typical:g} minutes "
                                f"({share:.0%} of steps); fluxpart needs 30- or 60-minute "
                                "records: average the file to 30 or 60 minutes first")
@@ -773,6 +859,9 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
     irregular = np.flatnonzero(np.abs(steps / declared - np.round(steps / declared)) > 1e-9)
     if irregular.size:
         row = int(irregular[0]) + 1
+        seconds = _scattered_seconds(stamps, steps, describe, declared)
+        if seconds:
+            raise SpacingError(seconds)
         found = sorted({f"{s:g}" for s in steps[irregular][:10]})
         raise SpacingError(
             f"stamps are {steps[irregular[0]]:g} minutes apart at {describe(row)} "

@@ -1,0 +1,177 @@
+"""Logger layouts of review round sixteen: mishaps whose refusal named the wrong cause or
+whose records were read at the wrong times.
+
+Outside facts, each named beside its check: the Gregorian calendar (12 months; a day of
+the month above 12 is no month), Python's ``datetime.strptime`` (``%I`` is the hour of a
+12-hour clock, AM/PM only through ``%p``: Python documentation of ``time.strftime``,
+note 1), ISO 8601 (a UTC offset follows a time of day: ``+hh:mm``; a day ends at 24:00,
+which is 00:00 of the next day (m)).
+"""
+
+import re
+from datetime import timedelta
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.errors import NonMonotonicTimestampError, SpacingError, TimestampError
+from fluxpart.io import read_table
+from fluxpart.timestamps import infer_interval, parse_stamps
+
+MAPPING = {"nee": "co2_flux", "rg": "sw_in", "tair": "t_air", "vpd": "vpd_air",
+           "ustar": "u_fric"}
+
+
+def _records(starts, seed=1):
+    """Invented tower records at interval starts `starts`, file columns of MAPPING."""
+    rng = np.random.default_rng(seed)
+    hour = starts.hour + starts.minute / 60
+    daylight = np.clip(np.sin((hour - 6) / 12 * np.pi), 0, None)
+    n = len(starts)
+    return pd.DataFrame({
+        "co2_flux": np.round(3 - 15 * daylight + rng.normal(0, 1.5, n), 3),
+        "sw_in": np.round(800 * daylight, 1),
+        "t_air": np.round(12 + 8 * daylight + rng.normal(0, 0.3, n), 2),
+        "vpd_air": np.round(2 + 14 * daylight, 2),
+        "u_fric": np.round(rng.uniform(0.05, 0.8, n), 3),
+    }, index=starts)
+
+
+def _write(path, records, stamps):
+    out = records.copy()
+    out.insert(0, "stamp", list(stamps))
+    out.to_csv(path, index=False)
+    return path
+
+
+def _read(paths, **kwargs):
+    options = {"columns": MAPPING, "time_column": "stamp", "time_format": "%Y-%m-%d %H:%M",
+               "time_marks": "end"}
+    options.update(kwargs)
+    return read_table(paths, **options)
+
+
+def _parse(text, time_format):
+    series = pd.Series(text)
+    return parse_stamps(series, time_format, time_columns=("stamp",), source="t.dat",
+                        lines=np.arange(2, len(series) + 2)).stamps
+
+
+def test_twelve_hour_field_without_am_pm_is_refused_as_a_setting():
+    """%I without %p: strptime reads "01:00" as 01:00 for 1 AM and 1 PM alike (Python
+    documentation of ``time.strftime``, note 1), so every afternoon record took a morning
+    stamp; it was refused as "stamp occurs 2 times with different values" at the first
+    afternoon record, naming no setting."""
+    stamps = ["2021-01-01 12:30", "2021-01-01 01:00", "2021-01-01 01:00"]
+    with pytest.raises(TimestampError, match=r'time_format = "%Y-%m-%d %I:%M" cannot be '
+                       r'used: %I is the hour of a 12-hour clock, which needs %p'):
+        _parse(stamps, "%Y-%m-%d %I:%M")
+    # the formats it points to read 12-hour stamps with AM/PM and 24-hour ones
+    assert list(_parse(["2021-01-01 01:00 PM"], "%Y-%m-%d %I:%M %p")) == [
+        pd.Timestamp(2021, 1, 1, 13)]
+    assert list(_parse(["2021-01-01 13:00"], "%Y-%m-%d %H:%M")) == [
+        pd.Timestamp(2021, 1, 1, 13)]
+
+
+def test_month_first_dates_under_a_day_first_format_name_the_exchange():
+    """Month-first stamps (01/13/2021) under "%d/%m/%Y": the first twelve days of each
+    month parse as wrong dates and the 13th fails, as no year has a 13th month (Gregorian
+    calendar). The error named only the failing stamp; now it names the exchanged
+    format, which reads every stamp at its true date."""
+    truth = pd.date_range("2021-01-01 00:30", "2021-02-28 00:00", freq="30min")
+    text = list(truth.strftime("%m/%d/%Y %H:%M"))
+    with pytest.raises(TimestampError, match=re.escape(
+            'the day and the month are exchanged (the stamps that parse up to there were '
+            'read as wrong dates): write time_format = "%m/%d/%Y %H:%M"')):
+        _parse(text, "%d/%m/%Y %H:%M")
+    assert list(_parse(text, "%m/%d/%Y %H:%M")) == list(truth)
+
+
+def test_day_first_dates_with_one_bad_stamp_get_no_exchange_hint():
+    """A day-first file with one damaged stamp is not told to exchange day and month."""
+    text = ["13/01/2021 00:30", "13/01/2021 01:00", "13/13/2021 01:30"]
+    with pytest.raises(TimestampError) as caught:
+        _parse(text, "%d/%m/%Y %H:%M")
+    assert "exchanged" not in str(caught.value)
+
+
+@pytest.mark.parametrize("cell", ["-9999", "", " ", "0"])
+def test_a_record_without_a_stamp_is_not_called_a_utc_offset(cell):
+    """A missing code or an empty cell in the time column: "-9999" ends like an ISO 8601
+    offset ("-hhmm"), and the hint had been "the stamp ends in a UTC offset: add %z"; an
+    offset follows a time of day (ISO 8601 (m)), which this cell lacks."""
+    text = ["2021-06-01 00:30", cell, "2021-06-01 01:30"]
+    with pytest.raises(TimestampError, match=r"line 3 .*a record without a date and time "
+                       r"\(an empty stamp or a missing code\)") as caught:
+        _parse(text, "%Y-%m-%d %H:%M")
+    assert "UTC offset" not in str(caught.value)
+
+
+def test_stamps_with_offsets_still_get_the_offset_hint():
+    """The offset hint stays for stamps that carry one."""
+    with pytest.raises(TimestampError, match="ends in a UTC offset: add %z"):
+        _parse(["2021-06-01 00:30+01:00", "2021-06-01 01:00+01:00"], "%Y-%m-%d %H:%M")
+
+
+@pytest.mark.parametrize("lag", [(35, 45), (-40, 40)])
+def test_seconds_scattered_beyond_the_jitter_are_named(tmp_path, lag):
+    """Stamps written when each record is saved, 35-45 s after its interval ends (or
+    scattered by up to 40 s): refused as "29.9333 minutes apart, not a whole multiple" or
+    as "the most common spacing is 30.0833 minutes: average the file" (the file is
+    30-minute records: averaging is the wrong fix). Now the seconds are named with a
+    stamp, its line and the fix; the fixed file reads to the true starts."""
+    starts = pd.date_range("2021-06-01 00:00", periods=480, freq="30min")
+    rng = np.random.default_rng(3)
+    seconds = pd.to_timedelta(rng.integers(lag[0], lag[1] + 1, len(starts)), unit="s")
+    ends = starts + pd.Timedelta(minutes=30)
+    records = _records(starts)
+    path = _write(tmp_path / "lag.csv", records, (ends + seconds).strftime("%Y-%m-%d %H:%M:%S"))
+    with pytest.raises(SpacingError, match=r"30-minute records carry seconds that vary from "
+                       r"record to record \(2021-06-01 .* at line \d+ of .*lag.csv.*Write each "
+                       r"stamp as the whole minute"):
+        _read(path, time_format="%Y-%m-%d %H:%M:%S")
+    fixed = _write(tmp_path / "fixed.csv", records, ends.strftime("%Y-%m-%d %H:%M:%S"))
+    frame, _ = _read(fixed, time_format="%Y-%m-%d %H:%M:%S")
+    assert list(frame.index) == list(starts)
+
+
+def test_ten_minute_records_still_named_as_such():
+    """Records of another interval keep their message (no seconds to blame)."""
+    stamps = pd.date_range("2021-06-01", periods=100, freq="10min")
+    with pytest.raises(SpacingError, match="most common spacing between stamps is 10 minutes"):
+        infer_interval(stamps)
+
+
+def test_midnight_dated_with_the_day_it_ends_is_not_sorted(tmp_path):
+    """A logger that dates the record ending at midnight with the day that ends
+    ("2021-06-01 00:00" after "2021-06-01 23:30") was told to "sort a copy of the file by
+    time", which puts each such record 24 h early without a word. Midnight ends the day:
+    it is 24:00 of that day or 00:00 of the next (ISO 8601 (m)); both spellings the error
+    now names read every record at its true time."""
+    starts = pd.date_range("2021-06-01 00:00", periods=144, freq="30min")
+    ends = starts + pd.Timedelta(minutes=30)
+    records = _records(starts)
+    wrong = [(e - timedelta(days=1) if e.hour == 0 and e.minute == 0 else e)
+             .strftime("%Y-%m-%d %H:%M") for e in ends]
+    path = _write(tmp_path / "midnight.csv", records, wrong)
+    with pytest.raises(NonMonotonicTimestampError, match=r"line 49 .*dated with the day it "
+                       r"ends.*24:00 of that day or as 00:00 of the next day") as caught:
+        _read(path)
+    assert "sort a copy" not in str(caught.value)
+    hour_24 = [(e - timedelta(days=1)).strftime("%Y-%m-%d 24:00")
+               if e.hour == 0 and e.minute == 0 else e.strftime("%Y-%m-%d %H:%M") for e in ends]
+    for name, text in (("h24.csv", hour_24), ("next.csv", ends.strftime("%Y-%m-%d %H:%M"))):
+        frame, _ = _read(_write(tmp_path / name, records, text))
+        assert list(frame.index) == list(starts)
+        np.testing.assert_array_equal(frame["nee"].to_numpy(), records["co2_flux"].to_numpy())
+
+
+def test_rows_out_of_order_keep_the_sort_hint(tmp_path):
+    """Two records exchanged (not at midnight) are still told to sort."""
+    starts = pd.date_range("2021-06-01 00:00", periods=96, freq="30min")
+    text = list((starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M"))
+    text[10], text[11] = text[11], text[10]
+    path = _write(tmp_path / "swap.csv", _records(starts), text)
+    with pytest.raises(NonMonotonicTimestampError, match="sort a copy of the file by time"):
+        _read(path)
