@@ -58,6 +58,7 @@ from .errors import (
 from .site import Site
 from .timestamps import (
     INTERVALS_MINUTES,
+    check_isolated_stretch,
     check_order,
     check_time_zone,
     clock_alignment_warning,
@@ -797,6 +798,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     def describe(position):
         return f"line {combined['lines'][position]} of {combined['sources'][position]!r}"
 
+    check_isolated_stretch(pd.DatetimeIndex(stamps), describe)
     interval_minutes = infer_interval(stamps, interval_minutes, describe)
     interval_change = interval_change_warning(pd.DatetimeIndex(stamps), interval_minutes,
                                               describe)

@@ -35,6 +35,7 @@ __all__ = [
     "budget_year_edges",
     "budget_year_numbers",
     "budget_years",
+    "check_isolated_stretch",
     "check_order",
     "check_time_zone",
     "clock_alignment_warning",
@@ -819,6 +820,58 @@ def _midnight_of_the_day_it_ends(stamps: pd.DatetimeIndex, row: int) -> bool:
     at_midnight = (stamps[back] == stamps[back].normalize())
     same_date = stamps[back].normalize() == stamps[back - 1].normalize()
     return bool(row in back and at_midnight.all() and same_date.all())
+
+
+#: A stretch of stamps this far from the rest of the record [days] ... (our choice: more
+#: than a year, so that no budget year could join it to the rest)
+ISOLATED_GAP_DAYS = 366.0
+#: ... and at most this long [days] is refused as a clock reset (our choice: shorter than
+#: a month, so that no budget year of its own could be judged from it; a logger clock
+#: reset to its default date runs for the days until someone sets it)
+ISOLATED_SPAN_DAYS = 31.0
+
+
+def check_isolated_stretch(stamps: pd.DatetimeIndex, describe=None) -> None:
+    """Raise where a short stretch of records lies more than a year from the rest.
+
+    Files of a glob are read in time order, so the records a logger wrote after its clock
+    was reset to a default date (2000-01-01 ...) in a file of their own, or at the start
+    of a file before the clock was set, go forward in time like any other: read, they
+    would open a record of decades of inserted, empty years.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        Sorted unique stamps of every file.
+    describe : callable, optional
+        ``describe(position)`` -> text naming the file and line of stamp `position`.
+
+    Raises
+    ------
+    TimestampError
+        A step of more than :data:`ISOLATED_GAP_DAYS` with at most
+        :data:`ISOLATED_SPAN_DAYS` of records on one side of it.
+    """
+    describe = describe or (lambda position: f"record {position + 1}")
+    if len(stamps) < 2:
+        return
+    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(days=1), dtype=float)
+    for gap in np.flatnonzero(steps > ISOLATED_GAP_DAYS):
+        before = (stamps[gap] - stamps[0]) / pd.Timedelta(days=1)
+        after = (stamps[-1] - stamps[gap + 1]) / pd.Timedelta(days=1)
+        if min(before, after) > ISOLATED_SPAN_DAYS:
+            continue
+        first, last = (0, gap) if before <= after else (gap + 1, len(stamps) - 1)
+        where = f"from {describe(first)} to {describe(last)}"
+        start, end = describe(first).split(" of ", 1), describe(last).split(" of ", 1)
+        if len(start) == len(end) == 2 and start[1] == end[1]:
+            where = f"lines {start[0].split()[-1]} to {end[0].split()[-1]} of {start[1]}"
+        raise TimestampError(
+            f"the {last - first + 1} record(s) of {where} "
+            f"({stamps[first]:%Y-%m-%d %H:%M} .. {stamps[last]:%Y-%m-%d %H:%M}) lie "
+            f"{steps[gap]:.0f} days from the rest of the record: a logger clock reset to "
+            "its default date, or a file of another period in [input] path? Remove those "
+            "rows (or that file) in a copy, or read the periods as separate sites")
 
 
 def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> int:

@@ -9,7 +9,7 @@ which is 00:00 of the next day (m)).
 """
 
 import re
-from datetime import timedelta
+from datetime import datetime, timedelta
 
 import numpy as np
 import pandas as pd
@@ -17,7 +17,7 @@ import pytest
 
 from fluxpart.errors import NonMonotonicTimestampError, SpacingError, TimestampError
 from fluxpart.io import read_table
-from fluxpart.timestamps import infer_interval, parse_stamps
+from fluxpart.timestamps import check_isolated_stretch, infer_interval, parse_stamps
 
 MAPPING = {"nee": "co2_flux", "rg": "sw_in", "tair": "t_air", "vpd": "vpd_air",
            "ustar": "u_fric"}
@@ -175,3 +175,67 @@ def test_rows_out_of_order_keep_the_sort_hint(tmp_path):
     path = _write(tmp_path / "swap.csv", _records(starts), text)
     with pytest.raises(NonMonotonicTimestampError, match="sort a copy of the file by time"):
         _read(path)
+
+
+def _year(seed=1):
+    starts = pd.date_range("2021-01-01 00:00", "2021-12-31 23:30", freq="30min")
+    return starts, _records(starts, seed)
+
+
+@pytest.mark.parametrize("own_file", [True, False])
+def test_clock_reset_to_a_default_date_across_files_is_refused(tmp_path, own_file):
+    """Three days a logger stamped from 2000-01-01 after its clock was reset, in a file of
+    their own (or at the start of its file): files are read in time order, so the record
+    ran from 2000 to 2021 with 21 inserted empty years (a warning "95% of stamps
+    absent"), and `run` then stopped on "no 15-day window" for the year 2000. Now refused
+    at the reader, naming the file, the lines and the stamps."""
+    starts, records = _year()
+    ends = starts + pd.Timedelta(minutes=30)
+    reset = (ends > "2021-08-10") & (ends <= "2021-08-13")
+    text = ends.strftime("%Y-%m-%d %H:%M").to_numpy().copy()
+    text[reset] = (pd.Timestamp("2000-01-01") + (ends[reset] - pd.Timestamp("2021-08-10"))
+                   ).strftime("%Y-%m-%d %H:%M")
+    if own_file:
+        before, after = ends <= "2021-08-10", ends > "2021-08-13"
+        paths = [_write(tmp_path / "a.csv", records[before], text[before]),
+                 _write(tmp_path / "b.csv", records[reset], text[reset]),
+                 _write(tmp_path / "c.csv", records[after], text[after])]
+        where = r"the 144 record\(s\) of lines 2 to 145 of '.*b\.csv'"
+    else:
+        order = np.concatenate([np.flatnonzero(reset), np.flatnonzero(~reset)])
+        paths = _write(tmp_path / "one.csv", records.iloc[order], text[order])
+        where = r"the 144 record\(s\) of lines 2 to 145 of '.*one\.csv'"
+    with pytest.raises(TimestampError, match=where + r" \(2000-01-01 00:30 \.\. 2000-01-04 "
+                       r"00:00\) lie \d+ days from the rest of the record: a logger clock "
+                       "reset"):
+        _read(paths)
+
+
+def test_two_years_a_year_apart_still_read(tmp_path):
+    """A record of 2019 and 2021 with 2020 absent (a tower off for a year) is read as
+    before, the absent year inserted as missing."""
+    starts, records = _year()
+    earlier = starts - pd.DateOffset(years=2)
+    paths = [_write(tmp_path / "a.csv", records, (earlier + pd.Timedelta(minutes=30))
+                    .strftime("%Y-%m-%d %H:%M")),
+             _write(tmp_path / "b.csv", records, (starts + pd.Timedelta(minutes=30))
+                    .strftime("%Y-%m-%d %H:%M"))]
+    frame, report = _read(paths)
+    assert frame.index[0] == pd.Timestamp("2019-01-01") and frame.index[-1] == starts[-1]
+    assert np.isnan(frame.loc["2020", "nee"]).all()
+    np.testing.assert_array_equal(frame.loc["2021", "nee"].to_numpy(),
+                                  records["co2_flux"].to_numpy())
+
+
+def test_isolated_stretch_rule_at_its_limits():
+    """A month-long stretch more than a year away is refused; 32 days or a gap of a
+    year are not."""
+    def stamps(first_days, gap_days):
+        head = pd.date_range(datetime(2010, 3, 1), periods=first_days * 48, freq="30min")
+        tail = pd.date_range(head[-1] + pd.Timedelta(days=gap_days), periods=48 * 400,
+                             freq="30min")
+        return head.append(tail)
+    with pytest.raises(TimestampError):
+        check_isolated_stretch(stamps(30, 400))
+    check_isolated_stretch(stamps(33, 400))
+    check_isolated_stretch(stamps(3, 366))
