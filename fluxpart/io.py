@@ -1429,6 +1429,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                               "is empty" if not text else "holds only blank lines") from None
     except pd.errors.ParserError as error:
         if "EOF inside string" not in str(error):
+            # a header line of a changed logger program holds more fields than the first
+            _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
             raise InputFileError(_parser_message(path, delimiter, str(error))) from None
         # a quote opened and never closed: the parser names no line of the file
         text_lines = text.splitlines()
@@ -1484,12 +1486,16 @@ def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
     if rows_before_header >= len(text_lines):
         return
     header_line = text_lines[rows_before_header].strip()
-    if not header_line or text.count(header_line) < 2:     # one C pass; most files stop here
+    if not header_line:
         return
     first_data = rows_before_header + rows_after_header + 1
+    if text.count(header_line) < 2:                       # one C pass; most files stop here
+        _refuse_other_header(path, text, text_lines, rows_before_header, first_data)
+        return
     again = next((number for number, line in enumerate(text_lines[first_data:], first_data)
                   if line.strip() == header_line), None)
     if again is None:
+        _refuse_other_header(path, text, text_lines, rows_before_header, first_data)
         return
     around = ("; the title and units lines around it too" if rows_before_header
               or rows_after_header else "")
@@ -1497,6 +1503,35 @@ def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
         f"input file {str(path)!r}: line {again + 1} repeats the header line (a logger "
         "program restarted, or files joined end to end?): in a copy of the file, remove it"
         f"{around}, or split the file there and list the parts in [input] path")
+
+
+def _refuse_other_header(path: Path, text: str, text_lines: list, header_at: int,
+                         first_data: int) -> None:
+    """Raise where a header line of other names or another order stands among the
+    records: a logger program changed (a column added, renamed or moved) and wrote its
+    new header. Read on, its line is "a record with a stamp that does not parse" or "a
+    record with too many fields", naming no cause. Found by the header's longest name
+    occurring again (one C pass) in a line holding at least half of the header's names.
+    """
+    header_line = text_lines[header_at]
+    names = {cell.strip().strip('"').strip() for cell in re.split(r'[,;\t ]', header_line)}
+    names.discard("")
+    if len(names) < 2:
+        return
+    longest = max(names, key=len)
+    if len(longest) < 3 or text.count(longest) < 2:
+        return
+    for number, line in enumerate(text_lines[first_data:], first_data):
+        if longest not in line:
+            continue
+        cells = {cell.strip().strip('"').strip() for cell in re.split(r'[,;\t ]', line)}
+        if len(cells & names) * 2 >= len(names):
+            raise InputFileError(
+                f"input file {str(path)!r}: line {number + 1} is a header line with other "
+                f"names or another order than the header of line {header_at + 1} (a "
+                "logger program changed and wrote its new header?): split the file there "
+                "and list the parts in [input] path (each part is read by its own header)")
+        return
 
 
 def _named_width(header: list) -> int:

@@ -15,7 +15,12 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart.errors import NonMonotonicTimestampError, SpacingError, TimestampError
+from fluxpart.errors import (
+    InputFileError,
+    NonMonotonicTimestampError,
+    SpacingError,
+    TimestampError,
+)
 from fluxpart.io import read_table
 from fluxpart.timestamps import check_isolated_stretch, infer_interval, parse_stamps
 
@@ -239,3 +244,53 @@ def test_isolated_stretch_rule_at_its_limits():
         check_isolated_stretch(stamps(30, 400))
     check_isolated_stretch(stamps(33, 400))
     check_isolated_stretch(stamps(3, 366))
+
+
+@pytest.mark.parametrize("change", ["added", "renamed", "moved"])
+def test_header_of_a_changed_logger_program_midfile_is_named(tmp_path, change):
+    """A logger program changed mid-file and wrote its new header (a column added, the
+    time column renamed, a column moved) before its records: refused as "line N has 10
+    fields ... two records run together?" or "has stamp 'stamp', which does not match
+    time_format", naming no cause; the exact header repeated was named since round six.
+    Now named as a header line; the fix it gives (split there, list the parts) reads
+    every record (RFC 4180 §2: the first line of a CSV file may be a header of names (m);
+    a part holds one)."""
+    starts = pd.date_range("2021-06-01 00:00", periods=192, freq="30min")
+    records = _records(starts)
+    stamps = list((starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M"))
+    first = _write(tmp_path / "part1.csv", records.iloc[:100], stamps[:100])
+    later = records.iloc[100:].copy()
+    column = "stamp"
+    if change == "added":
+        later["battery_v"] = 12.6
+    elif change == "renamed":
+        column = "stamp_end"
+    else:
+        later = later[["sw_in", "co2_flux", "t_air", "vpd_air", "u_fric"]]
+    second = tmp_path / "part2.csv"
+    out = later.copy()
+    out.insert(0, column, stamps[100:])
+    out.to_csv(second, index=False)
+    joined = tmp_path / "joined.csv"
+    joined.write_text(first.read_text() + second.read_text())
+    with pytest.raises(InputFileError, match=r"joined\.csv': line 102 is a header line with "
+                       r"other names or another order than the header of line 1.*split the "
+                       r"file there and list the parts in \[input\] path"):
+        _read(joined)
+    if change == "renamed":
+        return          # the parts need a time column of one name
+    frame, _ = _read([first, second])
+    assert list(frame.index) == list(starts)
+    np.testing.assert_array_equal(frame["nee"].to_numpy(), records["co2_flux"].to_numpy())
+
+
+def test_records_with_text_cells_are_not_a_header(tmp_path):
+    """A line holding one or two header names among numbers is no header line."""
+    starts = pd.date_range("2021-06-01 00:00", periods=96, freq="30min")
+    records = _records(starts)
+    records["note"] = "ok"
+    records.iloc[50, records.columns.get_loc("note")] = "u_fric co2_flux"
+    path = _write(tmp_path / "notes.csv", records,
+                  (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M"))
+    frame, _ = _read(path)
+    assert len(frame) == 96
