@@ -1946,6 +1946,7 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
         for key in part["lacking"]:
             lacking.setdefault(key, []).append(part)
     absent = {}
+    joined: dict = {}
     for (name, column), without in lacking.items():
         having = [part["source"] for part in parts if (name, column) not in part["lacking"]]
         first = without[0]
@@ -1965,6 +1966,13 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                                      f"{first['source']!r}")
         optional = name in _MAY_LACK and (name != "rh" or "vpd" in mapping)
         found = f"{setting}: the column is in {_file_list(having)} but not in {lacks}"
+        if _same_period(without, [part for part in parts if (name, column)
+                                  not in part["lacking"]]):
+            # files of one period holding different columns (a flux logger and a
+            # meteorological one): the rows of a stamp complete each other
+            joined.setdefault((_file_list(having), lacks), []).append(name)
+            absent[name] = (column, tuple(part["source"] for part in without), 0)
+            continue
         renamed = ("if one of them is the same quantity renamed, give it the same name in "
                    "every file (in a copy); else " if free else "")
         if near:
@@ -1989,15 +1997,32 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                         f"{lacks}{unmapped}; its {records} record(s) there are read as missing "
                         f"{name} (as if the column were there with empty cells){rename}; to "
                         f"use no file's {name}, remove it from [input.columns]")
+    for (having, lacks), names in joined.items():
+        warnings.append(f"{', '.join(names)}: in {having} but not in {lacks}, whose records "
+                        "share their stamps: read as files of one period holding different "
+                        "columns (a flux and a meteorological logger?), their rows joined by "
+                        "stamp")
     filled = []
     for part in parts:
-        names = [name for name, _ in part["lacking"] if name in absent]
+        names = [_flag_key(column) if name == "nee_flag" else name
+                 for name, column in part["lacking"] if name in absent]
         filled.append(part | {
             "values": part["values"] | {name: np.full(len(part["stamps"]), np.nan)
                                         for name in names},
             "missing_cells": part["missing_cells"] | dict.fromkeys(names, 0),
             "nonfinite_cells": part["nonfinite_cells"] | dict.fromkeys(names, 0)})
     return filled, absent
+
+
+def _same_period(without: list, having: list) -> bool:
+    """Whether most stamps (half or more) of every file in `without` are in a file of
+    `having`: files of one period holding different columns, not a column absent from a
+    period (our choice of share: loggers of one tower lose records apart)."""
+    if not having:
+        return False
+    stamps = np.concatenate([part["stamps"].to_numpy() for part in having])
+    return all(len(part["stamps"]) and np.isin(part["stamps"].to_numpy(), stamps).mean() >= 0.5
+               for part in without)
 
 
 def _names(columns: list, shown: int = 8) -> str:

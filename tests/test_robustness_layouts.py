@@ -17,6 +17,7 @@ import pytest
 
 from fluxpart.errors import (
     InputFileError,
+    MissingColumnError,
     NonMonotonicTimestampError,
     SpacingError,
     TimestampError,
@@ -294,3 +295,41 @@ def test_records_with_text_cells_are_not_a_header(tmp_path):
                   (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M"))
     frame, _ = _read(path)
     assert len(frame) == 96
+
+
+def test_flux_and_met_logger_files_of_one_period_are_joined(tmp_path):
+    """A tower with two loggers: the flux file (NEE, u*, its flag) and the
+    meteorological file (Rg, air temperature, VPD) of the same half-hours. Refused before,
+    with the fix "add the column to 'flux.csv' (empty cells where there is no value)",
+    which would have read a file of empty drivers over the other's values. Now joined
+    by stamp: the same frame as one file of every column, with a warning naming the
+    join; the met logger's outage is a gap of the drivers only."""
+    starts = pd.date_range("2021-06-01 00:00", periods=480, freq="30min")
+    records = _records(starts)
+    records["qc"] = np.where(np.arange(480) % 7 == 0, 2, 0)
+    stamps = (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M")
+    columns = dict(MAPPING, nee_flag="qc")
+    whole, _ = _read(_write(tmp_path / "whole.csv", records, stamps), columns=columns)
+    flux = _write(tmp_path / "flux.csv", records[["co2_flux", "u_fric", "qc"]], stamps)
+    outage = np.arange(480) >= 400                       # the met logger stops a day early
+    met = _write(tmp_path / "met.csv", records.loc[~outage, ["sw_in", "t_air", "vpd_air"]],
+                 stamps[~outage])
+    frame, report = _read([flux, met], columns=columns)
+    expected = whole.copy()
+    expected.loc[expected.index[outage], ["rg", "tair", "vpd"]] = np.nan
+    pd.testing.assert_frame_equal(frame, expected)
+    assert any("read as files of one period holding different columns" in w
+               for w in report.warnings)
+
+
+def test_a_required_column_absent_for_a_period_is_still_refused(tmp_path):
+    """Files of different periods (no shared stamps), the later one without Rg: refused
+    as before (a sensor's column absent for half the record is not a join)."""
+    starts = pd.date_range("2021-06-01 00:00", periods=480, freq="30min")
+    records = _records(starts)
+    stamps = (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M")
+    a = _write(tmp_path / "a.csv", records.iloc[:240], stamps[:240])
+    b = _write(tmp_path / "b.csv", records.iloc[240:].drop(columns="sw_in"), stamps[240:])
+    with pytest.raises(MissingColumnError, match=r"rg = \"sw_in\": the column is in .*a\.csv"
+                       r"' but not in .*b\.csv'"):
+        _read([a, b])
