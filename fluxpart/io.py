@@ -1457,6 +1457,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
     named = _named_width(header)
     raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings, named)
+    raw, lines = _drop_cut_last_value(path, text, raw, lines, warnings, named)
     unnamed_surplus = 0
     if named < raw.shape[1] and (raw.iloc[:, named:] == "").all(axis=None):
         # the header closed by a delimiter (an empty last name): the empty column goes;
@@ -1696,6 +1697,40 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
     if warnings is None:
         raise InputFileError(note.replace(": dropped", "; delete that line"))
     warnings.append(note)
+    return raw.iloc[:last].reset_index(drop=True), lines[:last]
+
+
+_DECIMALS = re.compile(r"^\s*[+-]?\d*[.,](\d+)\s*$")
+_WHOLE = re.compile(r"^\s*[+-]?\d+\s*$")
+
+
+def _drop_cut_last_value(path: Path, text: str, raw: pd.DataFrame, lines: np.ndarray,
+                         warnings, named: int) -> tuple[pd.DataFrame, np.ndarray]:
+    """Drop the last line where the file ends without a line end inside its last value: a
+    logger stopped mid-write after the last delimiter leaves every field, the last one
+    cut ("97.3" written as "9" or "97"). Told by the column's fixed decimals (a logger
+    writes each column with a fixed number of them): the cell has fewer decimals than
+    every number with decimals (5 or more) among the 20 lines before it.
+    """
+    if text[-1:] in ("\n", "\r", "") or warnings is None or len(raw) < 21:
+        return raw, lines
+    column = raw.iloc[-21:, min(named, raw.shape[1]) - 1]
+    before = column.iloc[:-1].str.extract(_DECIMALS, expand=False).str.len().dropna()
+    if before.size < 5 or before.nunique() != 1:
+        return raw, lines
+    decimals = int(before.iloc[0])
+    cell = column.iloc[-1]
+    found = _DECIMALS.match(cell)
+    cut = (len(found[1]) < decimals) if found else bool(
+        _WHOLE.match(cell.rstrip().rstrip(".,"))) or cell.strip() in ("", "-", "+", ".", ",")
+    if not cut:
+        return raw, lines
+    last = len(raw) - 1
+    warnings.append(
+        f"input file {str(path)!r}: its last line ({int(lines[last])}: "
+        f"{_shown_line(text.splitlines()[lines[last] - 1])!r}) ends without a line end in a "
+        f"value with fewer decimals ({cell.strip()!r}) than the {decimals} of that column "
+        "in the lines before it, a record cut short (a logger stopped mid-write): dropped")
     return raw.iloc[:last].reset_index(drop=True), lines[:last]
 
 

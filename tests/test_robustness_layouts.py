@@ -333,3 +333,30 @@ def test_a_required_column_absent_for_a_period_is_still_refused(tmp_path):
     with pytest.raises(MissingColumnError, match=r"rg = \"sw_in\": the column is in .*a\.csv"
                        r"' but not in .*b\.csv'"):
         _read([a, b])
+
+
+@pytest.mark.parametrize(("last", "dropped"), [("-2.34", True), ("-2.", True), ("-2", True),
+                                             ("-2.345", False)])
+def test_last_value_cut_without_a_line_end_is_dropped(tmp_path, last, dropped):
+    """A logger stopped mid-write after the last delimiter: every field is there, the last
+    one cut ('-2.345' written as '-2.34' or '-2'), and the file ends without a line end.
+    Read before as NEE -2.34 or -2, silently. The column's values carry 3 decimals
+    throughout (a logger writes each column with fixed decimals), so a shorter last
+    value ending the file is dropped with a warning; a whole last line is kept."""
+    starts = pd.date_range("2021-06-01 00:00", periods=96, freq="30min")
+    records = _records(starts)[["sw_in", "t_air", "vpd_air", "u_fric", "co2_flux"]]
+    records.iloc[-1, -1] = -2.345
+    out = records.copy()
+    out.insert(0, "stamp", (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M"))
+    text = out.to_csv(index=False, float_format="%.3f").rstrip("\n")
+    assert text.endswith(",-2.345")
+    path = tmp_path / "cut.csv"
+    path.write_text(text[:-len("-2.345")] + last)
+    frame, report = _read(path, interval_minutes=30)
+    named = [w for w in report.warnings if "ends without a line end" in w]
+    if dropped:
+        assert len(named) == 1 and len(frame) == 95
+        np.testing.assert_array_equal(frame["nee"].to_numpy(),
+                                      records["co2_flux"].to_numpy()[:-1])
+    else:
+        assert not named and len(frame) == 96 and frame["nee"].iloc[-1] == -2.345
