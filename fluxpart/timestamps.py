@@ -422,6 +422,19 @@ def _other_format(stamp: str, time_format: str) -> str:
     return ""
 
 
+_ENGLISH_MONTHS = ("jan", "feb", "mar", "apr", "may", "jun", "jul", "aug", "sep", "oct",
+                   "nov", "dec")
+
+
+def _foreign_month(stamp: str) -> str:
+    """A word of letters in `stamp` that starts no English month name, or ''."""
+    for word in re.findall(r"[^\W\d_]{3,}", stamp):
+        if word[:3].lower() not in _ENGLISH_MONTHS and word.upper() not in (
+                "AM", "PM", "UTC", "GMT"):
+            return word
+    return ""
+
+
 def _swapped_day_month(failed: pd.Series, time_format: str) -> str:
     """A hint where every failed stamp parses with %d and %m exchanged, else ''.
 
@@ -520,6 +533,15 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             f"[input] time_format = {setting_text(time_format)} cannot be used: %p (AM/PM) "
             "applies only to a 12-hour %I, so with %H every PM stamp would be read as AM; "
             f"write time_format = {setting_text(time_format.replace('%H', '%I'))}")
+    if "%" in time_format and not re.search(r"%[YyGs]", time_format):
+        # strptime fills an absent year with 1900: a file's stamps would be read in 1900
+        # (day 366 of a leap year as 1901-01-01), files of several years on each other
+        raise TimestampError(
+            f"[input] time_format = {setting_text(time_format)} cannot be used: it has no "
+            "year (%Y or %y), so every stamp would be read in the year 1900; add the "
+            "column holding the year to [input] time_column (several columns are joined "
+            "with one space, e.g. time_format = \"%Y %j %H%M\"), or write the year into "
+            "the stamps in a copy of the file (a year only in the file name is not read)")
     if "%I" in time_format and "%p" not in time_format:
         # strptime reads "01:00" under %I as 01:00 whether it was 1 AM or 1 PM: every
         # afternoon record would land on the morning's stamp
@@ -588,6 +610,15 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             # while the logger had no clock, or a missing code in the time column
             hint = ("; a record without a date and time (an empty stamp or a missing "
                     "code): give it its stamp or delete that line in a copy of the file")
+        elif "%j" in time_format and text[failed].str.contains(
+                r"(?<![\d.,])(?:000|0)(?![\d.,])", regex=True).all():
+            hint = ("; its day of year is 0: %j counts from 001 (1 January); a logger "
+                    "counting from 000 puts every record a day early: add 1 to the day "
+                    "of year in a copy of the file")
+        elif "%b" in time_format and _foreign_month(text.iloc[first]):
+            hint = (f"; {_foreign_month(text.iloc[first])!r} is no English month "
+                    "abbreviation, the only names %b reads: write the months as numbers "
+                    "(%m) in a copy of the file")
         elif _swapped_day_month(text[failed], time_format):
             hint = "; " + _swapped_day_month(text[failed], time_format)
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
@@ -750,6 +781,14 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
                 and stamps[first].month in (3, 4, 9, 10, 11)):
             hint = ("if the file is in civil time with daylight saving, set [input] "
                     "time_zone = \"Area/City\"; otherwise " + hint)
+        elif (time_zone is None and len(repeated.unique()) >= 2
+              and repeated.max() - repeated.min() <= pd.Timedelta(hours=1)):
+            # the same pattern outside the months of daylight-saving changes: a clock set
+            # back by an hour on another date (a logger switched to UTC or another zone)
+            hint = ("the stamps of up to an hour repeat there, as where a clock is set back "
+                    "by an hour (a logger switched to UTC or another zone?): correct the "
+                    "stamps after it in a copy of the file, or keep one of each repeated "
+                    "record if they are copies")
         raise DuplicateTimestampError(
             f"stamp {text.iloc[first]!r} occurs {len(rows)} times with different values in "
             f"{source!r} (lines {listed}); {int(stamps.duplicated().sum())} repeated stamp(s) "

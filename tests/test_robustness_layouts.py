@@ -16,6 +16,7 @@ import pandas as pd
 import pytest
 
 from fluxpart.errors import (
+    DuplicateTimestampError,
     InputFileError,
     MissingColumnError,
     NonMonotonicTimestampError,
@@ -360,3 +361,51 @@ def test_last_value_cut_without_a_line_end_is_dropped(tmp_path, last, dropped):
                                       records["co2_flux"].to_numpy()[:-1])
     else:
         assert not named and len(frame) == 96 and frame["nee"].iloc[-1] == -2.345
+
+
+@pytest.mark.parametrize(("time_format", "full"), [("%j %H%M", "%Y %j %H%M"),
+                                                  ("%H:%M", "%Y-%m-%d %H:%M"),
+                                                  ("%d.%m. %H:%M", "%d.%m.%Y %H:%M")])
+def test_a_format_without_a_year_is_refused(time_format, full):
+    """Day of year and time without a year column (the year only in the file name), or
+    the time of day alone in daily files: strptime fills the absent year with 1900
+    (Python documentation of ``datetime.strptime``: "1900-01-01T00:00:00.000" supplies
+    the fields a format lacks (m)), so a 2021 file was read, silently, as the year 1900 (daily
+    files of times alone were refused as a midnight dated with the day it ends)."""
+    truth = pd.date_range("2021-03-01 00:30", periods=4, freq="30min")
+    with pytest.raises(TimestampError, match=re.escape(
+            f'time_format = "{time_format}" cannot be used: it has no year (%Y or %y), so '
+            'every stamp would be read in the year 1900')):
+        _parse(list(truth.strftime(time_format)), time_format)
+    assert list(_parse(list(truth.strftime(full)), full)) == list(truth)
+
+
+def test_day_of_year_counted_from_zero_is_named():
+    """Day of year 000 (a logger counting from 0): %j counts from 001 (ISO 8601 ordinal
+    dates: 1 January is day 001 (m)). Refused before naming only the stamp; every other
+    day had parsed a day early."""
+    text = ["2021 000 0030", "2021 000 0100", "2021 001 0000"]
+    with pytest.raises(TimestampError, match=r"its day of year is 0: %j counts from 001"):
+        _parse(text, "%Y %j %H%M")
+
+
+def test_month_names_of_another_language_are_named():
+    """'Mär' under %b: Python's strptime reads the locale's month names, English in the C
+    locale fluxpart runs under (m); the error names the word and the numeric fix."""
+    text = ["28.Feb.2021 23:30", "01.Mär.2021 00:00"]
+    with pytest.raises(TimestampError, match=r"'Mär' is no English month abbreviation.*%m"):
+        _parse(text, "%d.%b.%Y %H:%M")
+
+
+def test_clock_set_back_an_hour_in_july_is_named(tmp_path):
+    """A logger switched from local standard time to UTC (UTC+1 site) on 1 July: the hour
+    before the switch repeats with other values. The daylight-saving hint is given only in
+    the months of clock changes, so this got "keep one of them in a copy of the file",
+    which would lose an hour and leave every later record an hour off."""
+    starts = pd.date_range("2021-06-29 00:00", periods=192, freq="30min")
+    ends = starts + pd.Timedelta(minutes=30)
+    stamps = ends.where(ends <= "2021-07-01 00:00", ends - pd.Timedelta(hours=1))
+    path = _write(tmp_path / "utc.csv", _records(starts), stamps.strftime("%Y-%m-%d %H:%M"))
+    with pytest.raises(DuplicateTimestampError, match=r"the stamps of up to an hour repeat "
+                       r"there, as where a clock is set back by an hour"):
+        _read(path)
