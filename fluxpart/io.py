@@ -1492,6 +1492,7 @@ def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
     first_data = rows_before_header + rows_after_header + 1
     if text.count(header_line) < 2:                       # one C pass; most files stop here
         _refuse_other_header(path, text, text_lines, rows_before_header, first_data)
+        _refuse_repeated_units(path, text, text_lines, rows_before_header, first_data)
         return
     again = next((number for number, line in enumerate(text_lines[first_data:], first_data)
                   if line.strip() == header_line), None)
@@ -1504,6 +1505,25 @@ def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
         f"input file {str(path)!r}: line {again + 1} repeats the header line (a logger "
         "program restarted, or files joined end to end?): in a copy of the file, remove it"
         f"{around}, or split the file there and list the parts in [input] path")
+
+
+def _refuse_repeated_units(path: Path, text: str, text_lines: list, header_at: int,
+                           first_data: int) -> None:
+    """Raise where a line skipped under the header (a units or processing line) repeats
+    among the records without the header: a logger that writes its units line again
+    after a restart. Read on, it is "a stamp that does not parse", naming no cause."""
+    for number in range(header_at + 1, min(first_data, len(text_lines))):
+        line = text_lines[number].strip()
+        if not any(ch.isalpha() for ch in line) or text.count(line) < 2:
+            continue                        # an empty units line (",,,,") reads as blank
+        again = next((k for k, other in enumerate(text_lines[first_data:], first_data)
+                      if other.strip() == line), None)
+        if again is not None:
+            raise InputFileError(
+                f"input file {str(path)!r}: line {again + 1} repeats line {number + 1}, a "
+                "line of [input] rows_after_header under the header (a units line written "
+                "again after a logger restart?): remove it in a copy of the file, or split "
+                "the file there and list the parts in [input] path")
 
 
 def _refuse_other_header(path: Path, text: str, text_lines: list, header_at: int,

@@ -409,3 +409,26 @@ def test_clock_set_back_an_hour_in_july_is_named(tmp_path):
     with pytest.raises(DuplicateTimestampError, match=r"the stamps of up to an hour repeat "
                        r"there, as where a clock is set back by an hour"):
         _read(path)
+
+
+def test_units_line_written_again_midfile_is_named(tmp_path):
+    """A logger that writes its units line again after a restart, without the header:
+    refused before as "line N has stamp 'yyyymmddHHMM', which does not match
+    time_format", naming no cause. An empty units line (",,,,") repeated is a blank line,
+    read as before."""
+    starts = pd.date_range("2021-06-01 00:00", periods=96, freq="30min")
+    records = _records(starts)
+    stamps = (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M")
+    body = _write(tmp_path / "plain.csv", records, stamps).read_text().splitlines()
+    for units, refused in (("yyyy-mm-dd HH:MM,umol m-2 s-1,W m-2,degC,hPa,m s-1", True),
+                           (",,,,,", False)):
+        lines = [body[0], units] + body[1:50] + [units] + body[50:]
+        path = tmp_path / "units.csv"
+        path.write_text("\n".join(lines) + "\n")
+        if refused:
+            with pytest.raises(InputFileError, match=r"line 52 repeats line 2, a line of "
+                               r"\[input\] rows_after_header under the header"):
+                _read(path, rows_after_header=1)
+        else:
+            frame, _ = _read(path, rows_after_header=1)
+            assert list(frame.index) == list(starts)
