@@ -2349,6 +2349,12 @@ def _columns_listing(file_columns: list) -> str:
 # --------------------------------------------------------------------------- values
 
 
+#: Dashes that stand where a minus sign belongs: hyphen, non-breaking hyphen, figure,
+#: en and em dash, small and full-width hyphen-minus (Unicode General Punctuation and
+#: compatibility blocks)
+_DASH_SIGN = re.compile("[\u2010\u2011\u2012\u2013\u2014\ufe63\uff0d]\\d")
+
+
 def _plain_numbers(text: pd.Series, decimal: str):
     """Values of a column whose cells are all empty or plain finite decimal numbers.
 
@@ -2414,6 +2420,15 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
             hint = ("; it is a number with digit grouping (a thousands separator): write the "
                     "numbers without digit grouping in a copy of the file (a spreadsheet's "
                     "number format without the 1000 separator)")
+        elif _DASH_SIGN.match(cell) and pd.notna(pd.to_numeric(
+                "-" + cell[1:].replace(",", "." if decimal == "," else ","),
+                errors="coerce")):
+            # listed as a missing code it would blank every negative value; read as a minus
+            # it would be a guess: a dash is punctuation, not a sign (Unicode: U+2212 MINUS
+            # SIGN is the sign beside U+002D HYPHEN-MINUS, and is read as one)
+            hint = (f"; it begins with the dash U+{ord(cell[0]):04X}, not a minus sign (a "
+                    "word processor's autocorrect?): replace it with \"-\" in a copy of the "
+                    "file")
         elif _FORTRAN_EXPONENT.fullmatch(cell):
             # listed as a missing code it would blank the whole column
             hint = ("; it is a number with a Fortran double-precision exponent (D for E: "

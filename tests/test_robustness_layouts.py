@@ -432,3 +432,24 @@ def test_units_line_written_again_midfile_is_named(tmp_path):
         else:
             frame, _ = _read(path, rows_after_header=1)
             assert list(frame.index) == list(starts)
+
+
+@pytest.mark.parametrize("dash", ["\u2013", "\u2012", "\u2010"])
+def test_a_dash_for_a_minus_sign_is_named(tmp_path, dash):
+    """'–7.46' with an en dash (U+2013), figure dash (U+2012) or hyphen (U+2010): refused
+    before with the hint "if '–7.46' marks missing data, add it to [input] missing",
+    which would blank every negative value. A dash is punctuation, not a sign (Unicode
+    Standard, General Punctuation: U+2212 MINUS SIGN is the sign (m)), so the cell is
+    named with its code point and the fix."""
+    starts = pd.date_range("2021-01-01 00:00", periods=96, freq="30min")
+    records = _records(starts)
+    records["t_air"] = records["t_air"] - 15.0
+    out = records.copy()
+    out.insert(0, "stamp", (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M"))
+    text = out.to_csv(index=False).replace(",-", "," + dash)
+    path = tmp_path / "dash.csv"
+    path.write_text(text, encoding="utf-8")
+    with pytest.raises(InputFileError, match=rf"begins with the dash U\+{ord(dash):04X}, not a "
+                       r"minus sign.*replace it with \"-\"") as caught:
+        _read(path)
+    assert "add it to [input] missing" not in str(caught.value)
