@@ -821,6 +821,11 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     refusals, suspicions = mixup_messages(converted, units, mapping, interval_minutes, potential,
                                           missing, starts)
     warnings.extend(suspicions)
+    if any(_CHANGED_WITHIN in w for w in suspicions):
+        # months that look like another unit or sign: where they are a file of their own,
+        # that file alone is judged as a one-file record would be
+        refusals |= _file_mixups(converted, units, mapping, interval_minutes, potential,
+                                 missing, starts, combined["sources"], refusals)
     for name, message in refusals.items():
         accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
     for name in converted:
@@ -1249,6 +1254,41 @@ def _check_accept_units(value) -> tuple:
                           f"variables ({', '.join(READER_VARIABLES)}) whose values are kept as "
                           "declared although they look like a unit mix-up")
     return tuple(value)
+
+
+#: The words of :func:`fluxpart.unit_checks.mixup_messages`' month-by-month warnings
+_CHANGED_WITHIN = "may have changed within the record"
+
+
+def _file_mixups(converted: dict, units: dict, mapping: dict, interval_minutes: int,
+                 potential, missing, starts, sources: np.ndarray, refusals: dict) -> dict:
+    """Refusals of unit or sign mix-ups confined to one file of several.
+
+    The whole-record checks see a file in another unit (kW m-2 for W m-2, uptake
+    positive) diluted by the other files and the month-by-month checks only warn (a month
+    holds fewer records to tell by); the records of one file alone are judged as a
+    one-file record of that length would be, so a file that alone would be refused is
+    refused, named. Run only where the months already look changed.
+    """
+    found: dict = {}
+    order = list(dict.fromkeys(sources))
+    if len(order) < 2:
+        return found
+    for source in order:
+        rows = sources == source
+        part = {name: values[rows] for name, values in converted.items()}
+        alone, _ = mixup_messages(part, units, mapping, interval_minutes,
+                                  None if potential is None else np.asarray(potential)[rows],
+                                  missing, starts[rows])
+        for name, message in alone.items():
+            if name in refusals or name in found:
+                continue
+            found[name] = (f"the records of input file {source!r} alone are refused: "
+                           f"{message} -- while those of the other {len(order) - 1} file(s) "
+                           "are not: a unit or sign that changed between the files, which one "
+                           "[input.units] setting cannot read; convert that file's column in a "
+                           f"copy of it (or list {name} in [input] accept_units)")
+    return found
 
 
 def _refuse_or_warn(name: str, message: str, accept_units: tuple, warnings: list,

@@ -453,3 +453,60 @@ def test_a_dash_for_a_minus_sign_is_named(tmp_path, dash):
                        r"minus sign.*replace it with \"-\"") as caught:
         _read(path)
     assert "add it to [input] missing" not in str(caught.value)
+
+
+def _year_files(tmp_path, change, split="2021-07-01"):
+    """The example year as two files, `change` applied to the second's text frame."""
+    from fluxpart.demo import write_example
+    config = write_example(tmp_path)
+    data = pd.read_csv(config.with_suffix(".csv"), dtype=str, keep_default_na=False)
+    later = data["stamp_end"] > split.replace("-", "") + "0000"
+    first, second = data[~later], data[later].copy()
+    change(second)
+    config.with_suffix(".csv").unlink()
+    first.to_csv(tmp_path / "part_a.csv", index=False)
+    second.to_csv(tmp_path / "part_b.csv", index=False)
+    config.write_text(config.read_text().replace('path = "quillmoor_grassland.csv"',
+                                                 'path = "part_*.csv"'))
+    return config
+
+
+def _kilowatts(frame):
+    present = frame["solar_down"] != "-9999"
+    frame.loc[present, "solar_down"] = (frame.loc[present, "solar_down"].astype(float)
+                                        / 1000).map(lambda v: f"{v:.4f}")
+
+
+def test_a_file_in_kilowatts_among_files_in_watts_is_refused(tmp_path, capsys):
+    """The example year in two files, the second's Rg in kW m-2 (an export changed at
+    midyear; 1 kW = 1000 W, SI). The months were warned about, but `run` went on: annual
+    NEE -415.8 for -241.4 g C m-2. That file alone would be refused as a one-file record,
+    so it is refused, named; listed in accept_units it is a warning."""
+    from fluxpart.cli import main
+    config = _year_files(tmp_path, _kilowatts)
+    assert main(["run", str(config), "--out", str(tmp_path / "out")]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and re.match(r"error: the records of input file '.*part_b\.csv' alone "
+                                      r"are refused: column 'solar_down' \(rg.*kW m-2.*while "
+                                      r"those of the other 1 file\(s\) are not", err[0])
+    assert not (tmp_path / "out").exists()
+    config.write_text(config.read_text().replace('missing = [-9999]',
+                                                 'missing = [-9999]\naccept_units = ["rg"]'))
+    from fluxpart.io import read_input, read_site_config
+    _, report = read_input(read_site_config(config))
+    assert any("part_b.csv" in w and "kept as declared" in w for w in report.warnings)
+
+
+def test_one_month_in_kilowatts_within_a_file_still_only_warns(tmp_path):
+    """A month in kW m-2 inside one file: named among the warnings as before, not refused
+    (the files are not where it changed)."""
+    def june(frame):
+        rows = (frame["stamp_end"] > "202108010000") & (frame["stamp_end"] <= "202109010000")
+        sub = frame[rows].copy()
+        _kilowatts(sub)
+        frame.loc[rows, "solar_down"] = sub["solar_down"]
+    config = _year_files(tmp_path, june)
+    from fluxpart.io import read_input, read_site_config
+    _, report = read_input(read_site_config(config))
+    assert any("may have changed within the record" in w and "2021-08" in w
+               for w in report.warnings)

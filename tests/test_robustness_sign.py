@@ -200,3 +200,9 @@ def test_second_file_with_the_opposite_sign_is_named(tmp_path, capsys):
     assert len(named) == 1 and "opposite sign" in named[0]
     months = re.findall(r"\d{4}-\d{2}", named[0])
     assert months and all("2021-07" <= m <= "2021-12" for m in months)
+    # the second file alone is what a one-file record of NEP would be: run refuses it
+    assert main(["run", str(config), "--out", str(tmp_path / "out")]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and re.match(r"error: the records of input file '.*part_b\.csv' alone "
+                                      r"are refused: .*opposite sign", err[0])
+    assert not (tmp_path / "out").exists()
