@@ -785,9 +785,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     header_rows = _header_rows_warning(parts)
     if header_rows:
         warnings.append(header_rows)
-    parts, absent = _fill_lacking(parts, mapping, time_columns, warnings)
+    parts, absent, joined = _fill_lacking(parts, mapping, time_columns, warnings)
     combined = _combine(parts)
-    if combined["completed_stamps"]:
+    if combined["completed_stamps"] and not joined:      # a join completes every stamp
         warnings.append(f"{combined['completed_stamps']} stamp(s) came from overlapping files "
                         "whose rows complete each other (a cell missing in one where "
                         "another has it, every other cell equal; the first "
@@ -2028,11 +2028,13 @@ _MAY_LACK = ("tsoil", "rh")
 
 
 def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
-                  warnings: list) -> tuple[list, dict]:
+                  warnings: list) -> tuple[list, dict, bool]:
     """Give the records of files lacking an optional mapped column missing values.
 
-    Returns the parts with NaN columns in place of the lacking ones, and for each such
-    variable ``(column, files lacking it, records read as missing)``. Raises where a
+    Returns the parts with NaN columns in place of the lacking ones, for each such
+    variable ``(column, files lacking it, records read as missing)``, and whether files
+    of one period holding different columns are joined (their columns lacking from each
+    other's files filled alike, the rows of a stamp then completing each other). Raises where a
     column is in no file, is not optional (:data:`_MAY_LACK`), or where a file lacking it
     has an unmapped column of a similar name (a renamed column, not a missing sensor).
     """
@@ -2065,8 +2067,7 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                                   not in part["lacking"]]):
             # files of one period holding different columns (a flux logger and a
             # meteorological one): the rows of a stamp complete each other
-            joined.setdefault((_file_list(having), lacks), []).append(name)
-            absent[name] = (column, tuple(part["source"] for part in without), 0)
+            joined.setdefault(lacks, []).append(name)
             continue
         renamed = ("if one of them is the same quantity renamed, give it the same name in "
                    "every file (in a copy); else " if free else "")
@@ -2092,21 +2093,22 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                         f"{lacks}{unmapped}; its {records} record(s) there are read as missing "
                         f"{name} (as if the column were there with empty cells){rename}; to "
                         f"use no file's {name}, remove it from [input.columns]")
-    for (having, lacks), names in joined.items():
-        warnings.append(f"{', '.join(names)}: in {having} but not in {lacks}, whose records "
-                        "share their stamps: read as files of one period holding different "
-                        "columns (a flux and a meteorological logger?), their rows joined by "
-                        "stamp")
+    if joined:
+        warnings.append("files of one period holding different columns (a flux and a "
+                        "meteorological logger?), their rows joined by stamp: "
+                        + "; ".join(f"{', '.join(names)} not in {lacks}"
+                                    for lacks, names in joined.items()))
     filled = []
     for part in parts:
         names = [_flag_key(column) if name == "nee_flag" else name
-                 for name, column in part["lacking"] if name in absent]
+                 for name, column in part["lacking"]
+                 if name in absent or any(name in names for names in joined.values())]
         filled.append(part | {
             "values": part["values"] | {name: np.full(len(part["stamps"]), np.nan)
                                         for name in names},
             "missing_cells": part["missing_cells"] | dict.fromkeys(names, 0),
             "nonfinite_cells": part["nonfinite_cells"] | dict.fromkeys(names, 0)})
-    return filled, absent
+    return filled, absent, bool(joined)
 
 
 def _same_period(without: list, having: list) -> bool:

@@ -319,8 +319,10 @@ def test_flux_and_met_logger_files_of_one_period_are_joined(tmp_path):
     expected = whole.copy()
     expected.loc[expected.index[outage], ["rg", "tair", "vpd"]] = np.nan
     pd.testing.assert_frame_equal(frame, expected)
-    assert any("read as files of one period holding different columns" in w
+    assert any("files of one period holding different columns" in w and "joined by stamp" in w
                for w in report.warnings)
+    assert not any("complete each other" in w for w in report.warnings)   # said once
+    assert not report.absent_columns                # no column read as missing for a file
 
 
 def test_a_required_column_absent_for_a_period_is_still_refused(tmp_path):
