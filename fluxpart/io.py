@@ -2071,6 +2071,15 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
             continue
         renamed = ("if one of them is the same quantity renamed, give it the same name in "
                    "every file (in a copy); else " if free else "")
+        other_stamps = _same_span_other_stamps(without, [part for part in parts if (
+            name, column) not in part["lacking"]])
+        if other_stamps:
+            raise MissingColumnError(
+                f"{found}, which covers the same period with stamps of its own "
+                f"({other_stamps}): files of one period holding different columns (a flux "
+                "and a meteorological logger?) are joined by stamp, which needs the same "
+                "record interval and stamps in each; average that file to the others' "
+                "records in a copy")
         if near:
             raise MissingColumnError(
                 f"{found}, which has an unmapped column of a similar name{near}: a column "
@@ -2109,6 +2118,29 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
             "missing_cells": part["missing_cells"] | dict.fromkeys(names, 0),
             "nonfinite_cells": part["nonfinite_cells"] | dict.fromkeys(names, 0)})
     return filled, absent, bool(joined)
+
+
+def _same_span_other_stamps(without: list, having: list) -> str:
+    """Where the files of `having` hold records among those of a file of `without` (a
+    quarter as many or more within its first and last stamp; our choice) though it shares
+    few of their stamps (another record interval or clock grid; called only where
+    :func:`_same_period` is false), its typical step and first stamp, e.g. ``"every 10
+    minutes from 2021-01-01 00:10"``; else ''. A file filling another's gap has none of
+    the other's records within it."""
+    if not having:
+        return ""
+    others = np.sort(np.concatenate([part["stamps"].to_numpy() for part in having]))
+    for part in without:
+        stamps = part["stamps"]
+        if len(stamps) < 2:
+            continue
+        # the other files' records among this file's own, not around a gap it fills
+        within = (np.searchsorted(others, stamps.max().to_datetime64(), side="right")
+                  - np.searchsorted(others, stamps.min().to_datetime64(), side="left"))
+        if within >= 0.25 * len(stamps):
+            step = float(np.median(np.diff(stamps.to_numpy())) / np.timedelta64(1, "m"))
+            return f"every {step:g} minutes from {stamps.min()} in {part['source']!r}"
+    return ""
 
 
 def _same_period(without: list, having: list) -> bool:

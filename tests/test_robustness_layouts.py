@@ -512,3 +512,38 @@ def test_one_month_in_kilowatts_within_a_file_still_only_warns(tmp_path):
     _, report = read_input(read_site_config(config))
     assert any("may have changed within the record" in w and "2021-08" in w
                for w in report.warnings)
+
+
+def test_met_file_of_another_interval_beside_a_flux_file_is_named(tmp_path):
+    """A meteorological logger writing every 10 minutes beside a 30-minute flux file: the
+    error had been "add the column to 'met.csv' (empty cells where there is no value)";
+    now it names the other stamps and that the join needs one interval."""
+    starts = pd.date_range("2021-06-01 00:00", periods=480, freq="30min")
+    records = _records(starts)
+    stamps = (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M")
+    flux = _write(tmp_path / "flux.csv", records[["co2_flux", "u_fric"]], stamps)
+    fine = pd.date_range(starts[0], periods=480 * 3, freq="10min")
+    met = _write(tmp_path / "met.csv", _records(fine)[["sw_in", "t_air", "vpd_air"]],
+                 (fine + pd.Timedelta(minutes=10)).strftime("%Y-%m-%d %H:%M"))
+    with pytest.raises(MissingColumnError, match=r"which covers the same period with stamps "
+                       r"of its own \(every 10 minutes from .*met\.csv'\).*needs the same "
+                       r"record interval") as caught:
+        _read([flux, met])
+    assert "empty cells" not in str(caught.value)
+
+
+def test_a_file_filling_a_gap_without_an_optional_column_still_reads(tmp_path):
+    """A second download filling a month-long gap of the main file, without the soil
+    probe's column: read as before (its records' tsoil missing, warned), not taken for a
+    logger of another interval."""
+    starts = pd.date_range("2021-06-01 00:00", periods=48 * 90, freq="30min")
+    records = _records(starts)
+    records["t_soil"] = np.round(records["t_air"] - 2.0, 2)
+    stamps = (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M")
+    gap = (starts >= "2021-07-01") & (starts < "2021-08-01")
+    main = _write(tmp_path / "main.csv", records[~gap], stamps[~gap])
+    patch = _write(tmp_path / "patch.csv", records[gap].drop(columns="t_soil"), stamps[gap])
+    frame, report = _read([main, patch], columns=dict(MAPPING, tsoil="t_soil"))
+    assert len(frame) == len(starts) and frame.loc[gap, "tsoil"].isna().all()
+    np.testing.assert_array_equal(frame["nee"].to_numpy(), records["co2_flux"].to_numpy())
+    assert any("t_soil" in w and "read as missing" in w for w in report.warnings)
