@@ -1256,6 +1256,10 @@ def _check_accept_units(value) -> tuple:
     return tuple(value)
 
 
+#: Shortest span of a file's records judged alone [days] (our choice: two months, so that
+#: one month of odd values, such as a pyranometer under snow, in a file of its own stays
+#: the month-by-month warning it is in one file)
+_FILE_CHECK_DAYS = 60.0
 #: The words of :func:`fluxpart.unit_checks.mixup_messages`' month-by-month warnings
 _CHANGED_WITHIN = "may have changed within the record"
 
@@ -1267,8 +1271,9 @@ def _file_mixups(converted: dict, units: dict, mapping: dict, interval_minutes: 
     The whole-record checks see a file in another unit (kW m-2 for W m-2, uptake
     positive) diluted by the other files and the month-by-month checks only warn (a month
     holds fewer records to tell by); the records of one file alone are judged as a
-    one-file record of that length would be, so a file that alone would be refused is
-    refused, named. Run only where the months already look changed.
+    one-file record of that length would be, so a file of :data:`_FILE_CHECK_DAYS` or
+    more that alone would be refused is refused, named. Run only where the months
+    already look changed.
     """
     found: dict = {}
     order = list(dict.fromkeys(sources))
@@ -1276,6 +1281,8 @@ def _file_mixups(converted: dict, units: dict, mapping: dict, interval_minutes: 
         return found
     for source in order:
         rows = sources == source
+        if (starts[rows][-1] - starts[rows][0]) < pd.Timedelta(days=_FILE_CHECK_DAYS):
+            continue                        # a month of odd values stays a warning
         part = {name: values[rows] for name, values in converted.items()}
         alone, _ = mixup_messages(part, units, mapping, interval_minutes,
                                   None if potential is None else np.asarray(potential)[rows],

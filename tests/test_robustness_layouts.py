@@ -547,3 +547,25 @@ def test_a_file_filling_a_gap_without_an_optional_column_still_reads(tmp_path):
     assert len(frame) == len(starts) and frame.loc[gap, "tsoil"].isna().all()
     np.testing.assert_array_equal(frame["nee"].to_numpy(), records["co2_flux"].to_numpy())
     assert any("t_soil" in w and "read as missing" in w for w in report.warnings)
+
+
+def test_one_month_file_in_kilowatts_among_monthly_files_only_warns(tmp_path):
+    """Monthly files, August's Rg a thousand times too small (a pyranometer under snow
+    looks alike): the month is named among the warnings, as in one file; a file shorter
+    than two months is not refused on its own."""
+    from fluxpart.demo import write_example
+    from fluxpart.io import read_input, read_site_config
+    config = write_example(tmp_path)
+    data = pd.read_csv(config.with_suffix(".csv"), dtype=str, keep_default_na=False)
+    config.with_suffix(".csv").unlink()
+    month = data["stamp_end"].str[:6]
+    for key, frame in data.groupby(month.where(month <= "202112", "202112")):
+        frame = frame.copy()
+        if key == "202108":
+            _kilowatts(frame)
+        frame.to_csv(tmp_path / f"m_{key}.csv", index=False)
+    config.write_text(config.read_text().replace('path = "quillmoor_grassland.csv"',
+                                                 'path = "m_*.csv"'))
+    _, report = read_input(read_site_config(config))
+    assert any("may have changed within the record" in w and "2021-08" in w
+               for w in report.warnings)
