@@ -58,6 +58,7 @@ from .errors import (
 from .site import Site
 from .timestamps import (
     INTERVALS_MINUTES,
+    check_isolated_stretch,
     check_order,
     check_time_zone,
     clock_alignment_warning,
@@ -784,9 +785,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     header_rows = _header_rows_warning(parts)
     if header_rows:
         warnings.append(header_rows)
-    parts, absent = _fill_lacking(parts, mapping, time_columns, warnings)
+    parts, absent, joined = _fill_lacking(parts, mapping, time_columns, warnings)
     combined = _combine(parts)
-    if combined["completed_stamps"]:
+    if combined["completed_stamps"] and not joined:      # a join completes every stamp
         warnings.append(f"{combined['completed_stamps']} stamp(s) came from overlapping files "
                         "whose rows complete each other (a cell missing in one where "
                         "another has it, every other cell equal; the first "
@@ -797,6 +798,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     def describe(position):
         return f"line {combined['lines'][position]} of {combined['sources'][position]!r}"
 
+    check_isolated_stretch(pd.DatetimeIndex(stamps), describe)
     interval_minutes = infer_interval(stamps, interval_minutes, describe)
     interval_change = interval_change_warning(pd.DatetimeIndex(stamps), interval_minutes,
                                               describe)
@@ -819,6 +821,11 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     refusals, suspicions = mixup_messages(converted, units, mapping, interval_minutes, potential,
                                           missing, starts)
     warnings.extend(suspicions)
+    if any(_CHANGED_WITHIN in w for w in suspicions):
+        # months that look like another unit or sign: where they are a file of their own,
+        # that file alone is judged as a one-file record would be
+        refusals |= _file_mixups(converted, units, mapping, interval_minutes, potential,
+                                 missing, starts, combined["sources"], refusals)
     for name, message in refusals.items():
         accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
     for name in converted:
@@ -1249,6 +1256,48 @@ def _check_accept_units(value) -> tuple:
     return tuple(value)
 
 
+#: Shortest span of a file's records judged alone [days] (our choice: two months, so that
+#: one month of odd values, such as a pyranometer under snow, in a file of its own stays
+#: the month-by-month warning it is in one file)
+_FILE_CHECK_DAYS = 60.0
+#: The words of :func:`fluxpart.unit_checks.mixup_messages`' month-by-month warnings
+_CHANGED_WITHIN = "may have changed within the record"
+
+
+def _file_mixups(converted: dict, units: dict, mapping: dict, interval_minutes: int,
+                 potential, missing, starts, sources: np.ndarray, refusals: dict) -> dict:
+    """Refusals of unit or sign mix-ups confined to one file of several.
+
+    The whole-record checks see a file in another unit (kW m-2 for W m-2, uptake
+    positive) diluted by the other files and the month-by-month checks only warn (a month
+    holds fewer records to tell by); the records of one file alone are judged as a
+    one-file record of that length would be, so a file of :data:`_FILE_CHECK_DAYS` or
+    more that alone would be refused is refused, named. Run only where the months
+    already look changed.
+    """
+    found: dict = {}
+    order = list(dict.fromkeys(sources))
+    if len(order) < 2:
+        return found
+    for source in order:
+        rows = sources == source
+        if (starts[rows][-1] - starts[rows][0]) < pd.Timedelta(days=_FILE_CHECK_DAYS):
+            continue                        # a month of odd values stays a warning
+        part = {name: values[rows] for name, values in converted.items()}
+        alone, _ = mixup_messages(part, units, mapping, interval_minutes,
+                                  None if potential is None else np.asarray(potential)[rows],
+                                  missing, starts[rows])
+        for name, message in alone.items():
+            if name in refusals or name in found:
+                continue
+            found[name] = (f"the records of input file {source!r} alone are refused: "
+                           f"{message} -- while those of the other {len(order) - 1} file(s) "
+                           "are not: a unit or sign that changed between the files, which one "
+                           "[input.units] setting cannot read; convert that file's column in a "
+                           f"copy of it (or list {name} in [input] accept_units)")
+    return found
+
+
 def _refuse_or_warn(name: str, message: str, accept_units: tuple, warnings: list,
                     preflight: list | None = None):
     """Warn for a variable in accept_units; else refuse (or, in a preflight, list it)."""
@@ -1427,6 +1476,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                               "is empty" if not text else "holds only blank lines") from None
     except pd.errors.ParserError as error:
         if "EOF inside string" not in str(error):
+            # a header line of a changed logger program holds more fields than the first
+            _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
             raise InputFileError(_parser_message(path, delimiter, str(error))) from None
         # a quote opened and never closed: the parser names no line of the file
         text_lines = text.splitlines()
@@ -1453,6 +1504,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
     named = _named_width(header)
     raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings, named)
+    raw, lines = _drop_cut_last_value(path, text, raw, lines, warnings, named)
     unnamed_surplus = 0
     if named < raw.shape[1] and (raw.iloc[:, named:] == "").all(axis=None):
         # the header closed by a delimiter (an empty last name): the empty column goes;
@@ -1482,12 +1534,17 @@ def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
     if rows_before_header >= len(text_lines):
         return
     header_line = text_lines[rows_before_header].strip()
-    if not header_line or text.count(header_line) < 2:     # one C pass; most files stop here
+    if not header_line:
         return
     first_data = rows_before_header + rows_after_header + 1
+    if text.count(header_line) < 2:                       # one C pass; most files stop here
+        _refuse_other_header(path, text, text_lines, rows_before_header, first_data)
+        _refuse_repeated_units(path, text, text_lines, rows_before_header, first_data)
+        return
     again = next((number for number, line in enumerate(text_lines[first_data:], first_data)
                   if line.strip() == header_line), None)
     if again is None:
+        _refuse_other_header(path, text, text_lines, rows_before_header, first_data)
         return
     around = ("; the title and units lines around it too" if rows_before_header
               or rows_after_header else "")
@@ -1495,6 +1552,54 @@ def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
         f"input file {str(path)!r}: line {again + 1} repeats the header line (a logger "
         "program restarted, or files joined end to end?): in a copy of the file, remove it"
         f"{around}, or split the file there and list the parts in [input] path")
+
+
+def _refuse_repeated_units(path: Path, text: str, text_lines: list, header_at: int,
+                           first_data: int) -> None:
+    """Raise where a line skipped under the header (a units or processing line) repeats
+    among the records without the header: a logger that writes its units line again
+    after a restart. Read on, it is "a stamp that does not parse", naming no cause."""
+    for number in range(header_at + 1, min(first_data, len(text_lines))):
+        line = text_lines[number].strip()
+        if not any(ch.isalpha() for ch in line) or text.count(line) < 2:
+            continue                        # an empty units line (",,,,") reads as blank
+        again = next((k for k, other in enumerate(text_lines[first_data:], first_data)
+                      if other.strip() == line), None)
+        if again is not None:
+            raise InputFileError(
+                f"input file {str(path)!r}: line {again + 1} repeats line {number + 1}, a "
+                "line of [input] rows_after_header under the header (a units line written "
+                "again after a logger restart?): remove it in a copy of the file, or split "
+                "the file there and list the parts in [input] path")
+
+
+def _refuse_other_header(path: Path, text: str, text_lines: list, header_at: int,
+                         first_data: int) -> None:
+    """Raise where a header line of other names or another order stands among the
+    records: a logger program changed (a column added, renamed or moved) and wrote its
+    new header. Read on, its line is "a record with a stamp that does not parse" or "a
+    record with too many fields", naming no cause. Found by the header's longest name
+    occurring again (one C pass) in a line holding at least half of the header's names.
+    """
+    header_line = text_lines[header_at]
+    names = {cell.strip().strip('"').strip() for cell in re.split(r'[,;\t ]', header_line)}
+    names.discard("")
+    if len(names) < 2:
+        return
+    longest = max(names, key=len)
+    if len(longest) < 3 or text.count(longest) < 2:
+        return
+    for number, line in enumerate(text_lines[first_data:], first_data):
+        if longest not in line:
+            continue
+        cells = {cell.strip().strip('"').strip() for cell in re.split(r'[,;\t ]', line)}
+        if len(cells & names) * 2 >= len(names):
+            raise InputFileError(
+                f"input file {str(path)!r}: line {number + 1} is a header line with other "
+                f"names or another order than the header of line {header_at + 1} (a "
+                "logger program changed and wrote its new header?): split the file there "
+                "and list the parts in [input] path (each part is read by its own header)")
+        return
 
 
 def _named_width(header: list) -> int:
@@ -1659,6 +1764,40 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
     if warnings is None:
         raise InputFileError(note.replace(": dropped", "; delete that line"))
     warnings.append(note)
+    return raw.iloc[:last].reset_index(drop=True), lines[:last]
+
+
+_DECIMALS = re.compile(r"^\s*[+-]?\d*[.,](\d+)\s*$")
+_WHOLE = re.compile(r"^\s*[+-]?\d+\s*$")
+
+
+def _drop_cut_last_value(path: Path, text: str, raw: pd.DataFrame, lines: np.ndarray,
+                         warnings, named: int) -> tuple[pd.DataFrame, np.ndarray]:
+    """Drop the last line where the file ends without a line end inside its last value: a
+    logger stopped mid-write after the last delimiter leaves every field, the last one
+    cut ("97.3" written as "9" or "97"). Told by the column's fixed decimals (a logger
+    writes each column with a fixed number of them): the cell has fewer decimals than
+    every number with decimals (5 or more) among the 20 lines before it.
+    """
+    if text[-1:] in ("\n", "\r", "") or warnings is None or len(raw) < 21:
+        return raw, lines
+    column = raw.iloc[-21:, min(named, raw.shape[1]) - 1]
+    before = column.iloc[:-1].str.extract(_DECIMALS, expand=False).str.len().dropna()
+    if before.size < 5 or before.nunique() != 1:
+        return raw, lines
+    decimals = int(before.iloc[0])
+    cell = column.iloc[-1]
+    found = _DECIMALS.match(cell)
+    cut = (len(found[1]) < decimals) if found else bool(
+        _WHOLE.match(cell.rstrip().rstrip(".,"))) or cell.strip() in ("", "-", "+", ".", ",")
+    if not cut:
+        return raw, lines
+    last = len(raw) - 1
+    warnings.append(
+        f"input file {str(path)!r}: its last line ({int(lines[last])}: "
+        f"{_shown_line(text.splitlines()[lines[last] - 1])!r}) ends without a line end in a "
+        f"value with fewer decimals ({cell.strip()!r}) than the {decimals} of that column "
+        "in the lines before it, a record cut short (a logger stopped mid-write): dropped")
     return raw.iloc[:last].reset_index(drop=True), lines[:last]
 
 
@@ -1896,11 +2035,13 @@ _MAY_LACK = ("tsoil", "rh")
 
 
 def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
-                  warnings: list) -> tuple[list, dict]:
+                  warnings: list) -> tuple[list, dict, bool]:
     """Give the records of files lacking an optional mapped column missing values.
 
-    Returns the parts with NaN columns in place of the lacking ones, and for each such
-    variable ``(column, files lacking it, records read as missing)``. Raises where a
+    Returns the parts with NaN columns in place of the lacking ones, for each such
+    variable ``(column, files lacking it, records read as missing)``, and whether files
+    of one period holding different columns are joined (their columns lacking from each
+    other's files filled alike, the rows of a stamp then completing each other). Raises where a
     column is in no file, is not optional (:data:`_MAY_LACK`), or where a file lacking it
     has an unmapped column of a similar name (a renamed column, not a missing sensor).
     """
@@ -1909,6 +2050,7 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
         for key in part["lacking"]:
             lacking.setdefault(key, []).append(part)
     absent = {}
+    joined: dict = {}
     for (name, column), without in lacking.items():
         having = [part["source"] for part in parts if (name, column) not in part["lacking"]]
         first = without[0]
@@ -1928,8 +2070,23 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                                      f"{first['source']!r}")
         optional = name in _MAY_LACK and (name != "rh" or "vpd" in mapping)
         found = f"{setting}: the column is in {_file_list(having)} but not in {lacks}"
+        if _same_period(without, [part for part in parts if (name, column)
+                                  not in part["lacking"]]):
+            # files of one period holding different columns (a flux logger and a
+            # meteorological one): the rows of a stamp complete each other
+            joined.setdefault(lacks, []).append(name)
+            continue
         renamed = ("if one of them is the same quantity renamed, give it the same name in "
                    "every file (in a copy); else " if free else "")
+        other_stamps = _same_span_other_stamps(without, [part for part in parts if (
+            name, column) not in part["lacking"]])
+        if other_stamps:
+            raise MissingColumnError(
+                f"{found}, which covers the same period with stamps of its own "
+                f"({other_stamps}): files of one period holding different columns (a flux "
+                "and a meteorological logger?) are joined by stamp, which needs the same "
+                "record interval and stamps in each; average that file to the others' "
+                "records in a copy")
         if near:
             raise MissingColumnError(
                 f"{found}, which has an unmapped column of a similar name{near}: a column "
@@ -1952,15 +2109,56 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                         f"{lacks}{unmapped}; its {records} record(s) there are read as missing "
                         f"{name} (as if the column were there with empty cells){rename}; to "
                         f"use no file's {name}, remove it from [input.columns]")
+    if joined:
+        warnings.append("files of one period holding different columns (a flux and a "
+                        "meteorological logger?), their rows joined by stamp: "
+                        + "; ".join(f"{', '.join(names)} not in {lacks}"
+                                    for lacks, names in joined.items()))
     filled = []
     for part in parts:
-        names = [name for name, _ in part["lacking"] if name in absent]
+        names = [_flag_key(column) if name == "nee_flag" else name
+                 for name, column in part["lacking"]
+                 if name in absent or any(name in names for names in joined.values())]
         filled.append(part | {
             "values": part["values"] | {name: np.full(len(part["stamps"]), np.nan)
                                         for name in names},
             "missing_cells": part["missing_cells"] | dict.fromkeys(names, 0),
             "nonfinite_cells": part["nonfinite_cells"] | dict.fromkeys(names, 0)})
-    return filled, absent
+    return filled, absent, bool(joined)
+
+
+def _same_span_other_stamps(without: list, having: list) -> str:
+    """Where the files of `having` hold records among those of a file of `without` (a
+    quarter as many or more within its first and last stamp; our choice) though it shares
+    few of their stamps (another record interval or clock grid; called only where
+    :func:`_same_period` is false), its typical step and first stamp, e.g. ``"every 10
+    minutes from 2021-01-01 00:10"``; else ''. A file filling another's gap has none of
+    the other's records within it."""
+    if not having:
+        return ""
+    others = np.sort(np.concatenate([part["stamps"].to_numpy() for part in having]))
+    for part in without:
+        stamps = part["stamps"]
+        if len(stamps) < 2:
+            continue
+        # the other files' records among this file's own, not around a gap it fills
+        within = (np.searchsorted(others, stamps.max().to_datetime64(), side="right")
+                  - np.searchsorted(others, stamps.min().to_datetime64(), side="left"))
+        if within >= 0.25 * len(stamps):
+            step = float(np.median(np.diff(stamps.to_numpy())) / np.timedelta64(1, "m"))
+            return f"every {step:g} minutes from {stamps.min()} in {part['source']!r}"
+    return ""
+
+
+def _same_period(without: list, having: list) -> bool:
+    """Whether most stamps (half or more) of every file in `without` are in a file of
+    `having`: files of one period holding different columns, not a column absent from a
+    period (our choice of share: loggers of one tower lose records apart)."""
+    if not having:
+        return False
+    stamps = np.concatenate([part["stamps"].to_numpy() for part in having])
+    return all(len(part["stamps"]) and np.isin(part["stamps"].to_numpy(), stamps).mean() >= 0.5
+               for part in without)
 
 
 def _names(columns: list, shown: int = 8) -> str:
@@ -2232,6 +2430,12 @@ def _columns_listing(file_columns: list) -> str:
 # --------------------------------------------------------------------------- values
 
 
+#: Dashes that stand where a minus sign belongs: hyphen, non-breaking hyphen, figure,
+#: en and em dash, small and full-width hyphen-minus (Unicode General Punctuation and
+#: compatibility blocks)
+_DASH_SIGN = re.compile("[\u2010\u2011\u2012\u2013\u2014\ufe63\uff0d]\\d")
+
+
 def _plain_numbers(text: pd.Series, decimal: str):
     """Values of a column whose cells are all empty or plain finite decimal numbers.
 
@@ -2297,6 +2501,15 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
             hint = ("; it is a number with digit grouping (a thousands separator): write the "
                     "numbers without digit grouping in a copy of the file (a spreadsheet's "
                     "number format without the 1000 separator)")
+        elif _DASH_SIGN.match(cell) and pd.notna(pd.to_numeric(
+                "-" + cell[1:].replace(",", "." if decimal == "," else ","),
+                errors="coerce")):
+            # listed as a missing code it would blank every negative value; read as a minus
+            # it would be a guess: a dash is punctuation, not a sign (Unicode: U+2212 MINUS
+            # SIGN is the sign beside U+002D HYPHEN-MINUS, and is read as one)
+            hint = (f"; it begins with the dash U+{ord(cell[0]):04X}, not a minus sign (a "
+                    "word processor's autocorrect?): replace it with \"-\" in a copy of the "
+                    "file")
         elif _FORTRAN_EXPONENT.fullmatch(cell):
             # listed as a missing code it would blank the whole column
             hint = ("; it is a number with a Fortran double-precision exponent (D for E: "

@@ -35,6 +35,7 @@ __all__ = [
     "budget_year_edges",
     "budget_year_numbers",
     "budget_years",
+    "check_isolated_stretch",
     "check_order",
     "check_time_zone",
     "clock_alignment_warning",
@@ -50,6 +51,9 @@ INTERVALS_MINUTES = (30, 60)
 
 _RANGES_SHOWN = 5
 _OFFSET_AT_END = re.compile(r"(?:Z|[+-]\d{2}:?\d{2})$")
+#: A stamp cell that holds no date: empty, a negative number or one of at most five
+#: digits (a missing code such as -9999 in the time column)
+_NO_DATE = re.compile(r"\s*(?:-\d+(?:[.,]\d*)?|\+?\d{1,5}(?:[.,]\d*)?)?\s*")
 _HOUR_24 = (
     (re.compile(r"(?<!\d)24:00(:00)?(?!\d)"), lambda m: "00:00" + (m[1] or "")),
     (re.compile(r"(?<!\d)24(00)$"), lambda m: "00" + m[1]),
@@ -418,6 +422,35 @@ def _other_format(stamp: str, time_format: str) -> str:
     return ""
 
 
+_ENGLISH_MONTHS = ("jan", "feb", "mar", "apr", "may", "jun", "jul", "aug", "sep", "oct",
+                   "nov", "dec")
+
+
+def _foreign_month(stamp: str) -> str:
+    """A word of letters in `stamp` that starts no English month name, or ''."""
+    for word in re.findall(r"[^\W\d_]{3,}", stamp):
+        if word[:3].lower() not in _ENGLISH_MONTHS and word.upper() not in (
+                "AM", "PM", "UTC", "GMT"):
+            return word
+    return ""
+
+
+def _swapped_day_month(failed: pd.Series, time_format: str) -> str:
+    """A hint where every failed stamp parses with %d and %m exchanged, else ''.
+
+    Stamps of month-first dates (06/13/2021) read under a day-first format parse up to
+    the 12th of each month, as the wrong dates, and fail from the 13th on.
+    """
+    if "%d" not in time_format or "%m" not in time_format:
+        return ""
+    swapped = (time_format.replace("%d", "\0").replace("%m", "%d").replace("\0", "%m"))
+    if pd.to_datetime(failed, format=swapped, errors="coerce").notna().all():
+        return ("the day and the month are exchanged (the stamps that parse up to there "
+                "were read as wrong dates): write time_format = "
+                f"{setting_text(swapped)}")
+    return ""
+
+
 def _fraction_hint(failed: pd.Series, time_format: str) -> str:
     """A hint where stamps that fail hold numbers with a decimal fraction (a decimal day
     of year or hour; integers saved from a table of floating-point numbers), else ''."""
@@ -500,6 +533,23 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             f"[input] time_format = {setting_text(time_format)} cannot be used: %p (AM/PM) "
             "applies only to a 12-hour %I, so with %H every PM stamp would be read as AM; "
             f"write time_format = {setting_text(time_format.replace('%H', '%I'))}")
+    if "%" in time_format and not re.search(r"%[YyGs]", time_format):
+        # strptime fills an absent year with 1900: a file's stamps would be read in 1900
+        # (day 366 of a leap year as 1901-01-01), files of several years on each other
+        raise TimestampError(
+            f"[input] time_format = {setting_text(time_format)} cannot be used: it has no "
+            "year (%Y or %y), so every stamp would be read in the year 1900; add the "
+            "column holding the year to [input] time_column (several columns are joined "
+            "with one space, e.g. time_format = \"%Y %j %H%M\"), or write the year into "
+            "the stamps in a copy of the file (a year only in the file name is not read)")
+    if "%I" in time_format and "%p" not in time_format:
+        # strptime reads "01:00" under %I as 01:00 whether it was 1 AM or 1 PM: every
+        # afternoon record would land on the morning's stamp
+        raise TimestampError(
+            f"[input] time_format = {setting_text(time_format)} cannot be used: %I is the "
+            "hour of a 12-hour clock, which needs %p (AM/PM) beside it; without it 1 PM is "
+            "read as 1 AM: add %p where the stamps carry AM/PM, or write the hour as %H "
+            "(a 24-hour clock)")
     if time_format.endswith("Z") and not time_format.endswith("%Z") and time_zone is None:
         time_format = time_format[:-1] + "%z"       # "...%SZ": the Z of UTC, not a letter
     with_offset = _carries_offset(text, time_format)
@@ -555,6 +605,22 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = (f"; if the file has {'a units line' if skip == 1 else f'{skip} lines'} "
                     f"{'' if skip == 1 else '(units, processing) '}under the header, set "
                     f"[input] rows_after_header = {skip}")
+        elif _NO_DATE.fullmatch(text.iloc[first]) and not failed.all():
+            # a record whose stamp is empty or a bare number ("-9999"): a row written
+            # while the logger had no clock, or a missing code in the time column
+            hint = ("; a record without a date and time (an empty stamp or a missing "
+                    "code): give it its stamp or delete that line in a copy of the file")
+        elif "%j" in time_format and text[failed].str.contains(
+                r"(?<![\d.,])(?:000|0)(?![\d.,])", regex=True).all():
+            hint = ("; its day of year is 0: %j counts from 001 (1 January); a logger "
+                    "counting from 000 puts every record a day early: add 1 to the day "
+                    "of year in a copy of the file")
+        elif "%b" in time_format and _foreign_month(text.iloc[first]):
+            hint = (f"; {_foreign_month(text.iloc[first])!r} is no English month "
+                    "abbreviation, the only names %b reads: write the months as numbers "
+                    "(%m) in a copy of the file")
+        elif _swapped_day_month(text[failed], time_format):
+            hint = "; " + _swapped_day_month(text[failed], time_format)
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
         elif "%Z" in time_format and re.search(r"\s[A-Za-z]{2,6}$", text.iloc[first]):
@@ -715,6 +781,14 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
                 and stamps[first].month in (3, 4, 9, 10, 11)):
             hint = ("if the file is in civil time with daylight saving, set [input] "
                     "time_zone = \"Area/City\"; otherwise " + hint)
+        elif (time_zone is None and len(repeated.unique()) >= 2
+              and repeated.max() - repeated.min() <= pd.Timedelta(hours=1)):
+            # the same pattern outside the months of daylight-saving changes: a clock set
+            # back by an hour on another date (a logger switched to UTC or another zone)
+            hint = ("the stamps of up to an hour repeat there, as where a clock is set back "
+                    "by an hour (a logger switched to UTC or another zone?): correct the "
+                    "stamps after it in a copy of the file, or keep one of each repeated "
+                    "record if they are copies")
         raise DuplicateTimestampError(
             f"stamp {text.iloc[first]!r} occurs {len(rows)} times with different values in "
             f"{source!r} (lines {listed}); {int(stamps.duplicated().sum())} repeated stamp(s) "
@@ -731,11 +805,112 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
             hint = (f"the stamps jump back by {back_days:.0f} days ({backwards.size} backward "
                     "step(s) in all): a logger clock reset or rows of another period; correct "
                     "or remove those rows in a copy of the file (sorting would misplace them)")
+        elif _midnight_of_the_day_it_ends(stamps, row):
+            hint = ("every record ending at midnight seems dated with the day it ends "
+                    "(00:00 after 23:30 of the same date): write midnight as 24:00 of that "
+                    "day or as 00:00 of the next day in a copy of the file (sorting would "
+                    "place each such record a day early)")
         else:
             hint = "sort a copy of the file by time"
         raise NonMonotonicTimestampError(
             f"stamps go backwards at {_where(source, lines, row)}: {text.iloc[row]!r} comes "
             f"after {text.iloc[row - 1]!r}; {hint}")
+
+
+def _scattered_seconds(stamps: pd.DatetimeIndex, steps: np.ndarray, describe,
+                       interval=None) -> str:
+    """The message where stamps are 30- or 60-minute records whose seconds scatter beyond
+    the rounding of :data:`JITTER_SECONDS` (a logger stamping the moment it writes each
+    record, seconds to a minute after the interval ends), else ''.
+
+    The test: most steps lie within a minute of one interval, and stamps off the whole
+    minute are common; such records are neither refused as another interval nor read at
+    clock times that drift by seconds from record to record.
+    """
+    if steps.size == 0:
+        return ""
+    candidates = INTERVALS_MINUTES if interval is None else (interval,)
+    for minutes in candidates:
+        near = np.abs(steps - minutes) < 1.0
+        if near.mean() < 0.5 or not (near & (steps != minutes)).any():
+            continue
+        seconds = np.asarray(stamps.second + stamps.microsecond / 1e6, dtype=float)
+        off = np.minimum(seconds, 60.0 - seconds)
+        far = np.flatnonzero(off > JITTER_SECONDS)
+        if far.size < 0.1 * len(stamps):
+            continue
+        first = int(far[0])
+        return (f"the stamps of these {minutes}-minute records carry seconds that vary "
+                f"from record to record ({stamps[first]:%Y-%m-%d %H:%M:%S} at "
+                f"{describe(first)}; {far.size} stamps more than {JITTER_SECONDS:g} s from "
+                f"a whole minute, up to {off.max():.0f} s): only stamps within "
+                f"{JITTER_SECONDS:g} s of a whole minute are rounded (clock jitter). A logger "
+                "that stamps the moment it writes each record? Write each stamp as the "
+                "whole minute of its interval's end (or start) in a copy of the file")
+    return ""
+
+
+def _midnight_of_the_day_it_ends(stamps: pd.DatetimeIndex, row: int) -> bool:
+    """Whether the stamp at `row`, which goes back, is 00:00 of the date of the stamp before
+    it, and every backward step of the file is such a midnight (a logger that dates the
+    record ending at midnight with the day that ends)."""
+    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(seconds=1))
+    back = np.flatnonzero(steps < 0) + 1
+    at_midnight = (stamps[back] == stamps[back].normalize())
+    same_date = stamps[back].normalize() == stamps[back - 1].normalize()
+    return bool(row in back and at_midnight.all() and same_date.all())
+
+
+#: A stretch of stamps this far from the rest of the record [days] ... (our choice: more
+#: than a year, so that no budget year could join it to the rest)
+ISOLATED_GAP_DAYS = 366.0
+#: ... and at most this long [days] is refused as a clock reset (our choice: shorter than
+#: a month, so that no budget year of its own could be judged from it; a logger clock
+#: reset to its default date runs for the days until someone sets it)
+ISOLATED_SPAN_DAYS = 31.0
+
+
+def check_isolated_stretch(stamps: pd.DatetimeIndex, describe=None) -> None:
+    """Raise where a short stretch of records lies more than a year from the rest.
+
+    Files of a glob are read in time order, so the records a logger wrote after its clock
+    was reset to a default date (2000-01-01 ...) in a file of their own, or at the start
+    of a file before the clock was set, go forward in time like any other: read, they
+    would open a record of decades of inserted, empty years.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        Sorted unique stamps of every file.
+    describe : callable, optional
+        ``describe(position)`` -> text naming the file and line of stamp `position`.
+
+    Raises
+    ------
+    TimestampError
+        A step of more than :data:`ISOLATED_GAP_DAYS` with at most
+        :data:`ISOLATED_SPAN_DAYS` of records on one side of it.
+    """
+    describe = describe or (lambda position: f"record {position + 1}")
+    if len(stamps) < 2:
+        return
+    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(days=1), dtype=float)
+    for gap in np.flatnonzero(steps > ISOLATED_GAP_DAYS):
+        before = (stamps[gap] - stamps[0]) / pd.Timedelta(days=1)
+        after = (stamps[-1] - stamps[gap + 1]) / pd.Timedelta(days=1)
+        if min(before, after) > ISOLATED_SPAN_DAYS:
+            continue
+        first, last = (0, gap) if before <= after else (gap + 1, len(stamps) - 1)
+        where = f"from {describe(first)} to {describe(last)}"
+        start, end = describe(first).split(" of ", 1), describe(last).split(" of ", 1)
+        if len(start) == len(end) == 2 and start[1] == end[1]:
+            where = f"lines {start[0].split()[-1]} to {end[0].split()[-1]} of {start[1]}"
+        raise TimestampError(
+            f"the {last - first + 1} record(s) of {where} "
+            f"({stamps[first]:%Y-%m-%d %H:%M} .. {stamps[last]:%Y-%m-%d %H:%M}) lie "
+            f"{steps[gap]:.0f} days from the rest of the record: a logger clock reset to "
+            "its default date, or a file of another period in [input] path? Remove those "
+            "rows (or that file) in a copy, or read the periods as separate sites")
 
 
 def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> int:
@@ -766,6 +941,9 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
         typical = float(found[np.argmax(counts)])
         if typical not in INTERVALS_MINUTES:
             share = counts.max() / steps.size
+            seconds = _scattered_seconds(stamps, steps, describe)
+            if seconds:
+                raise SpacingError(seconds)
             raise SpacingError(f"the most common spacing between stamps is {typical:g} minutes "
                                f"({share:.0%} of steps); fluxpart needs 30- or 60-minute "
                                "records: average the file to 30 or 60 minutes first")
@@ -773,6 +951,9 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
     irregular = np.flatnonzero(np.abs(steps / declared - np.round(steps / declared)) > 1e-9)
     if irregular.size:
         row = int(irregular[0]) + 1
+        seconds = _scattered_seconds(stamps, steps, describe, declared)
+        if seconds:
+            raise SpacingError(seconds)
         found = sorted({f"{s:g}" for s in steps[irregular][:10]})
         raise SpacingError(
             f"stamps are {steps[irregular[0]]:g} minutes apart at {describe(row)} "

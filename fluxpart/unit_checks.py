@@ -393,6 +393,15 @@ def _night_median(converted: dict, potential) -> float:
     return float(np.median(values)) if values.size else math.nan
 
 
+def _night_median_outside(converted: dict, potential, stamps, months: list) -> float:
+    """:func:`_night_median` of the records outside the calendar `months` ("YYYY-MM")."""
+    if stamps is None:
+        return math.nan
+    rest = ~np.isin(np.asarray(stamps, dtype="datetime64[M]").astype(str), months)
+    part = {name: values[rest] for name, values in converted.items()}
+    return _night_median(part, None if potential is None else np.asarray(potential)[rest])
+
+
 def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, potential=None):
     """NEE with the opposite sign (uptake positive, e.g. NEP mapped as ``nee``).
 
@@ -523,7 +532,12 @@ def _changed_within(check, name: str, columns: dict, what: str, converted: dict,
     `check` as for :func:`_months_refused`; `columns` maps variables to file columns;
     `what` says what those months look like.
     """
-    months = _months_refused(check, converted, potential, stamps)
+    return _changed_months_warning(name, columns, what,
+                                   _months_refused(check, converted, potential, stamps))
+
+
+def _changed_months_warning(name: str, columns: dict, what: str, months: list) -> list:
+    """The warning of :func:`_changed_within` for `months` ([] if none)."""
     if not months:
         return []
     column = columns.get(name, name)
@@ -895,17 +909,22 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 warnings.append(warn)
             # a sign that changed within the record: months with both backwards (a month
             # holds fewer records to tell by, so this only warns). A changed sign turns the
-            # night's sign against the rest of the record's, so only a record whose nights
-            # are a release overall is searched: where they are an uptake throughout (a
-            # desert's nights with abiotic uptake (m)), a month of rain-pulse release by day
-            # is not a changed sign
-            if not (refuse or warn) and _night_median(converted, potential) >= 0.0:
-                warnings += _changed_within(
+            # night's sign against the rest of the record's, so the months are named only
+            # where the nights of the other months are a release: where they are an uptake
+            # too (a desert's nights with abiotic uptake (m)), a month of rain-pulse release
+            # by day is not a changed sign. (Judged on the other months, not the whole
+            # record: a sign changed for half a year, a second file of another convention,
+            # turns the whole record's night median negative.)
+            if not (refuse or warn):
+                months = _months_refused(
                     lambda part, sun: _nee_sign_message(part, columns, interval_minutes,
                                                         sun)[0],
-                    "nee", columns, "NEE with the opposite sign (negative night "
-                    "median, uptake tail shorter than the release tail)",
                     converted, potential, stamps)
+                if months and _night_median_outside(converted, potential, stamps,
+                                                    months) >= 0.0:
+                    warnings += _changed_months_warning(
+                        "nee", columns, "NEE with the opposite sign (negative night "
+                        "median, uptake tail shorter than the release tail)", months)
         refuse = _storage_sign_message(converted, columns, potential, stamps)
         if refuse:
             refusals["storage"] = refuse

@@ -10,6 +10,8 @@ savanna (little uptake), a C4 crop (uptake only part of the year) and a
 high-latitude fen (night respiration near zero).
 """
 
+import re
+
 import pytest
 
 from fluxpart import scenarios
@@ -164,3 +166,43 @@ def test_desert_nights_of_uptake_with_a_rain_pulse_month_are_not_a_changed_sign(
     _, warnings = mixup_messages(dict(converted, nee=vegetated), {}, columns, 30, potential,
                                  (), index)
     assert any("may have changed within the record" in w and "2021-08" in w for w in warnings)
+
+
+def test_second_file_with_the_opposite_sign_is_named(tmp_path, capsys):
+    """The example year split into two files, the second (July to December) written with
+    uptake positive (an export of another convention): its nights turn the whole record's
+    night median negative, which had kept the month-by-month search from running, so
+    `check` exited 0 and annual NEE read -92 for -342 g C m-2 of measured records (review
+    round sixteen). Facts of the trade as in the module docstring: night NEE is a release,
+    the rest of the record's nights are."""
+    config = write_example(tmp_path)
+    data = config.with_suffix(".csv")
+    lines = data.read_text().splitlines()
+    header = lines[0].split(",")
+    column, stamp = header.index("co2_exchange"), header.index("stamp_end")
+    first, second = [lines[0]], [lines[0]]
+    for line in lines[1:]:
+        cells = line.split(",")
+        if cells[stamp] > "202107010000":
+            if float(cells[column]) != -9999:
+                cells[column] = repr(-float(cells[column]))
+            second.append(",".join(cells))
+        else:
+            first.append(line)
+    data.unlink()
+    (tmp_path / "part_a.csv").write_text("\n".join(first) + "\n")
+    (tmp_path / "part_b.csv").write_text("\n".join(second) + "\n")
+    config.write_text(config.read_text().replace('path = "quillmoor_grassland.csv"',
+                                                 'path = "part_*.csv"'))
+    assert main(["check", str(config)]) == 1
+    out = capsys.readouterr().out
+    named = [line for line in out.splitlines() if "may have changed within the record" in line]
+    assert len(named) == 1 and "opposite sign" in named[0]
+    months = re.findall(r"\d{4}-\d{2}", named[0])
+    assert months and all("2021-07" <= m <= "2021-12" for m in months)
+    # the second file alone is what a one-file record of NEP would be: run refuses it
+    assert main(["run", str(config), "--out", str(tmp_path / "out")]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and re.match(r"error: the records of input file '.*part_b\.csv' alone "
+                                      r"are refused: .*opposite sign", err[0])
+    assert not (tmp_path / "out").exists()
