@@ -363,3 +363,19 @@ def test_combined_driver_weight_opens_the_choice_only_on_a_contradiction():
     assert combined_driver_weight(1e-30, -1.5, 1.96) == 1e-30
     assert combined_driver_weight(0.2, float("nan"), 1.96) == 0.2
     assert combined_driver_weight(0.2, None, 1.96) == 0.2
+
+
+def test_conflict_note_names_each_line_of_evidence_by_the_statistic_sign():
+    """The statistic is the mean daily loss differential |e_other| - |e_central| over its
+    standard error (Diebold & Mariano 1995 (m)): positive means the temperature in use fits
+    the day better. A contradiction with a positive statistic is the night leaning to the
+    other temperature (combined_driver_weight(0.9, 3.0) is 1/2), so the warning must say
+    the night favours the other and the day the one in use, not the reverse."""
+    from fluxpart.partition.temperature_choice import conflict_note
+    from fluxpart.uncertainty import combined_driver_weight
+    assert combined_driver_weight(0.9, 3.0, 1.96) == 0.5       # night: tsoil; day: tair
+    reverse = conflict_note("tair", "tsoil", 3.0)
+    assert "night records favour tsoil" in reverse
+    assert "better with tair" in reverse and "tair in use" in reverse
+    usual = conflict_note("tair", "tsoil", -3.0)
+    assert "night records favour tair" in usual and "better with tsoil" in usual

@@ -406,9 +406,27 @@ def daytime_evidence(nee_measured, is_day, modelled_central, modelled_other, day
 
 
 def conflict_note(central: str, other: str, statistic: float) -> str:
-    """The warning of a temperature choice the daytime records contradict."""
-    return (f"respiration temperature: the night records favour {central}, but the daytime "
-            f"method fits the measured daytime NEE better with {other} (day-by-day statistic "
-            f"{statistic:+.2f}, beyond ±{DAYTIME_EVIDENCE_Z}): neither is shown to drive "
-            "respiration through the whole day, so the temperature-driver part of the Reco "
-            "and GPP uncertainty weighs both equally (reco_uncertainty_temperature_driver)")
+    """The warning of a temperature choice the daytime records contradict.
+
+    Parameters
+    ----------
+    central, other : str
+        The temperature in use and the other candidate.
+    statistic : float
+        :func:`daytime_evidence` [1]: negative where the daytime records favour
+        `other` (the night records then favour `central`), positive where they favour
+        `central` (the night records then lean to `other`, which a temperature fixed by
+        ``respiration_driver`` or kept by the choice's evidence rules can leave in use).
+
+    Returns
+    -------
+    str
+        Names which temperature each line of evidence favours, and the statistic.
+    """
+    night, day = (central, other) if statistic < 0 else (other, central)
+    return (f"respiration temperature: the night records favour {night}, but the daytime "
+            f"method fits the measured daytime NEE better with {day} (day-by-day statistic "
+            f"{statistic:+.2f}, beyond ±{DAYTIME_EVIDENCE_Z}; {central} in use): neither is "
+            "shown to drive respiration through the whole day, so the temperature-driver part "
+            "of the Reco and GPP uncertainty weighs both equally "
+            "(reco_uncertainty_temperature_driver)")
