@@ -181,7 +181,8 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     tair : array_like
         Measured air temperature [°C].
     tsoil : array_like or None
-        Measured soil temperature [°C]; None when the input has none.
+        Measured soil temperature [°C]; None when the input has none (a series
+        without a single finite value is taken as none).
     is_night : array_like of bool
         Night records.
     **nighttime_settings
@@ -218,7 +219,9 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     """
     nee = np.asarray(nee_measured, dtype=float)
     night = np.asarray(is_night, dtype=bool)
-    if tsoil is None:
+    if tsoil is None or not np.isfinite(np.asarray(tsoil, dtype=float)).any():
+        # a soil column without a single value (a probe lost all along) is no soil record:
+        # air temperature, tested for a delay as where the column is absent
         return _air_delay(index, nee, tair, night, nighttime_settings)
     fits = {"tair": _night_fit(index, nee, tair, night, "tair", nighttime_settings)}
     try:
