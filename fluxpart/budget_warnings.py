@@ -98,6 +98,8 @@ def _uncertainty_parts_missing(year, row, config, failed=()) -> list:
                           "bootstrap of its own uncertainty")
         elif config.ustar_bootstrap_draws == 0:
             causes.append("ustar_bootstrap_draws = 0 turns the u* threshold's bootstrap off")
+        elif not config.ustar_scenarios:
+            causes.append("ustar_scenarios = [] runs no u* scenario")
     cause = f" ({'; '.join(causes)})" if causes else ""
     return [f"{year}: the 95 % intervals leave out the {parts} part(s) of the uncertainty, "
             f"which could not be estimated{cause}: they understate the uncertainty of the "
