@@ -272,6 +272,9 @@ def test_annual_e0_takes_the_nearest_year_only_when_asked():
         "fallback")
     [note] = nighttime.nearest_year_notes(table, "tsoil")
     assert "2022" in note and "E0 of 2021" in note and "tsoil" in note
+    # E0 is fitted per calendar year (windows of night records within it, Reichstein et al.
+    # 2005 (m)), whatever budget year_start: the note says which year it means
+    assert "calendar year 2022" in note
 
 
 def test_annual_e0_nearest_year_tie_takes_the_earlier_and_none_still_refuses():
