@@ -80,8 +80,15 @@ def _uncertainty_parts_missing(year, row, config, failed=()) -> list:
     parts = row.get("uncertainty_parts_missing")
     if not isinstance(parts, str) or not parts:
         return []
-    if failed:   # the method-failure warning names the between-method part it lacks
-        parts = ", ".join(part for part in parts.split(", ") if part != "partitioning")
+    if failed:
+        # the method-failure warning names the between-method part it lacks, and the
+        # failed method's own parts are NaN with its sums: only a part the standing
+        # method's intervals lack is named here
+        standing = [method for method in ("nighttime", "daytime") if method not in failed]
+        has_parameters = all(np.isfinite(float(row.get(f"reco_{method}_uncertainty_parameters",
+                                                        np.nan))) for method in standing)
+        parts = ", ".join(part for part in parts.split(", ") if part != "partitioning"
+                          and not (part == "parameters" and has_parameters))
         if not parts:
             return []
     causes = []
@@ -91,6 +98,8 @@ def _uncertainty_parts_missing(year, row, config, failed=()) -> list:
                           "bootstrap of its own uncertainty")
         elif config.ustar_bootstrap_draws == 0:
             causes.append("ustar_bootstrap_draws = 0 turns the u* threshold's bootstrap off")
+        elif not config.ustar_scenarios:
+            causes.append("ustar_scenarios = [] runs no u* scenario")
     cause = f" ({'; '.join(causes)})" if causes else ""
     return [f"{year}: the 95 % intervals leave out the {parts} part(s) of the uncertainty, "
             f"which could not be estimated{cause}: they understate the uncertainty of the "

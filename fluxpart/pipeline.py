@@ -221,6 +221,11 @@ def _temperature(config: Config, frame: pd.DataFrame) -> str:
     if driver != "auto" and driver not in frame.columns:
         raise ConfigError(f"[processing] respiration_driver = {driver!r}, but the input has no "
                           f"column {driver!r}; map it in [input.columns] or use 'tair'")
+    if driver != "auto" and not np.isfinite(frame[driver].to_numpy(dtype=float)).any():
+        # else both methods fail on it, and the error blames the night NEE
+        raise ConfigError(f"[processing] respiration_driver = {driver!r}, but column {driver!r} "
+                          "has no value (every record empty or a missing code); set "
+                          "respiration_driver = 'auto' or the other temperature")
     return driver
 
 

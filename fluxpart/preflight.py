@@ -697,6 +697,14 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         repeated = _repeated_records(frame, interval_minutes)
         findings += repeated or _repeated_nee(frame, interval_minutes)
         findings += _column_faults(screened, potential, interval_minutes, sources)
+    if (temperature_name in frame.columns
+            and not np.isfinite(frame[temperature_name].to_numpy(dtype=float)).any()):
+        # a fixed driver without a value: both methods fail on it (process refuses it)
+        findings.append(Finding(
+            "respiration temperature",
+            f"[processing] respiration_driver = {config.respiration_driver!r}, but column "
+            f"{(sources or {}).get(temperature_name, temperature_name)!r} has no value: set "
+            "respiration_driver = 'auto' or the other temperature", True))
     days = ((index - index[0].normalize()) / pd.Timedelta(days=1)).to_numpy()
     nee = screened["nee"].to_numpy(dtype=float)
     temperature = (screened[temperature_name].to_numpy(dtype=float)
@@ -704,8 +712,10 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     usable_night = is_night & np.isfinite(nee) & np.isfinite(temperature)
     ustar = screened["ustar"].to_numpy(dtype=float) if "ustar" in screened.columns else nee * 0
     tair = screened["tair"].to_numpy(dtype=float) if "tair" in screened.columns else nee * 0
+    # the detector classes nights by air temperature whatever drives respiration
     ustar_findings, fallback_years = _ustar(
-        index, usable_night & np.isfinite(ustar) & np.isfinite(tair), latitude, config)
+        index, is_night & np.isfinite(nee) & np.isfinite(ustar) & np.isfinite(tair), latitude,
+        config)
     # where the threshold is known before detection (method "fixed", or the fall-back of
     # years without enough night records), the u* filter's losses are counted too
     fixed_years = (set(index.year) if config.ustar_method == "fixed"

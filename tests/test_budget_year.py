@@ -257,3 +257,15 @@ def test_intervals_that_leave_out_the_ustar_part_are_warned():
     default = process(frame, demo.site(), Config())
     assert default.annual.loc[2021, "uncertainty_parts_missing"] == ""
     assert not any("leave out" in w for w in default.warnings)
+
+
+def test_intervals_without_ustar_scenarios_name_the_setting():
+    """No u* scenario run leaves the u* threshold's part (a recognised part of an annual
+    budget's uncertainty, Papale et al. 2006 (m)) NaN and out of the total: the warning
+    names the setting that did it, as it does for a fixed threshold or no bootstrap."""
+    frame, _ = demo.site_year(seed=3)
+    with pytest.warns(Warning):
+        result = process(frame, demo.site(), Config(ustar_scenarios=()))
+    assert np.isnan(result.annual.loc[2021, "nee_uncertainty_ustar"])
+    text = [w for w in result.warnings if "leave out the ustar" in w]
+    assert len(text) == 1 and "ustar_scenarios = []" in text[0]

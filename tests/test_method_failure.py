@@ -91,6 +91,24 @@ def test_polar_night_runs_with_the_daytime_method_nan(polar_run):
     assert text in result.warnings
 
 
+def test_polar_night_warns_of_no_part_the_nighttime_intervals_hold(polar_run):
+    """The nighttime 95 % interval is the sum ± z sigma_total with z = 1.959964 (the
+    normal quantile, statistics.NormalDist) and sigma_total holding the nighttime
+    parameters part, which is finite: a warning that the year's intervals leave out the
+    parameters part (only the failed daytime method's, NaN with its sums) would be
+    wrong."""
+    from statistics import NormalDist
+    _, _, result, texts = polar_run
+    row = result.annual.loc[2019]
+    assert np.isfinite(row["reco_nighttime_uncertainty_parameters"])
+    z = NormalDist().inv_cdf(0.975)
+    half = (row["reco_nighttime_ci95_high"] - row["reco_nighttime_ci95_low"]) / 2
+    assert half == pytest.approx(z * row["reco_nighttime_uncertainty_total"], rel=1e-9)
+    assert row["reco_nighttime_uncertainty_total"] >= row["reco_nighttime_uncertainty_parameters"]
+    assert "parameters" in row["uncertainty_parts_missing"]       # the table keeps its label
+    assert not [t for t in texts if "leave out the parameters" in t]
+
+
 def test_polar_night_nee_and_respiration_recover_the_truth(polar_run):
     """Known truth of the invented forest: in the dark NEE is respiration alone, and the
     nighttime Reco and the filled NEE sum to the true Reco within 10 % (the record's
@@ -254,6 +272,9 @@ def test_annual_e0_takes_the_nearest_year_only_when_asked():
         "fallback")
     [note] = nighttime.nearest_year_notes(table, "tsoil")
     assert "2022" in note and "E0 of 2021" in note and "tsoil" in note
+    # E0 is fitted per calendar year (windows of night records within it, Reichstein et al.
+    # 2005 (m)), whatever budget year_start: the note says which year it means
+    assert "calendar year 2022" in note
 
 
 def test_annual_e0_nearest_year_tie_takes_the_earlier_and_none_still_refuses():

@@ -177,6 +177,17 @@ def test_soil_temperature_as_respiration_driver():
         process(frame.drop(columns="tsoil"), demo.site(), config)
 
 
+def test_a_fixed_respiration_temperature_without_values_names_the_column():
+    """Lloyd & Taylor (1994) respiration is a function of a temperature: with the fixed
+    driver's column empty throughout, neither method can fit, and the error must name that
+    column and setting, not ask for "measured night NEE" (which is there)."""
+    frame, _ = demo.site_year(seed=4)
+    config = Config(respiration_driver="tsoil", ustar_bootstrap_draws=0)
+    with pytest.raises(ConfigError, match="column 'tsoil' has no value") as caught:
+        process(frame.assign(tsoil=np.nan), demo.site(), config)
+    assert "night NEE" not in str(caught.value)
+
+
 def test_respiration_form_average_shifts_reco_and_gpp_alike_and_is_recorded(demo_run):
     """The default central nighttime Reco is Lloyd-Taylor's plus the weight w times the
     constant-Q10 refit's difference; GPP = Reco - NEE moves with it (NEE unchanged), and

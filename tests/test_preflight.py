@@ -248,3 +248,33 @@ def test_every_night_of_a_month_missing_is_named_though_the_days_are_measured(de
     frame.loc[night & (frame.index >= "2021-06-01") & (frame.index < "2021-06-15"), "nee"] = np.nan
     _, findings = check_record(frame, demo.site())
     assert "gap filling (night)" not in _stages(findings)
+
+
+def test_ustar_finding_counts_nights_with_air_temperature_whatever_drives_respiration(
+        demo_frame):
+    """The moving point test classes night records by air temperature (Reichstein et al.
+    2005; Papale et al. 2006 (m)), and the run's detector is given Tair whatever
+    respiration_driver says: a soil probe read on one day in ten leaves the detector every
+    night, so the preflight must not announce the fixed-threshold fall-back; air
+    temperature read on one day in ten does leave it too few nights in every season."""
+    config = Config(respiration_driver="tsoil", ustar_bootstrap_draws=0)
+    sparse = (np.arange(len(demo_frame)) // 48) % 10 != 0         # all but every 10th day
+    frame = demo_frame.copy()
+    frame.loc[sparse, "tsoil"] = np.nan
+    _, findings = check_record(frame, demo.site(), config)
+    assert "u* threshold" not in _stages(findings)
+    frame = demo_frame.copy()
+    frame.loc[sparse, "tair"] = np.nan
+    _, findings = check_record(frame, demo.site(), config)
+    assert "u* threshold" in _stages(findings)
+
+
+def test_a_fixed_respiration_temperature_without_values_is_a_fatal_finding(demo_frame):
+    """Lloyd & Taylor (1994) respiration needs its temperature: respiration_driver = tsoil
+    with that column empty stops both methods, and check says so by the setting."""
+    frame = demo_frame.assign(tsoil=np.nan)
+    _, findings = check_record(frame, demo.site(), Config(respiration_driver="tsoil"))
+    [finding] = [f for f in findings if f.stage == "respiration temperature"]
+    assert finding.fatal and "respiration_driver = 'tsoil'" in finding.message
+    _, findings = check_record(frame, demo.site(), Config())       # auto: air temperature
+    assert "respiration temperature" not in _stages(findings)

@@ -112,6 +112,24 @@ def test_without_soil_temperature_air_temperature_is_used():
     assert choice.delay_delta_bic > -STRONG_EVIDENCE_BIC
 
 
+@pytest.mark.parametrize("seed", [1, 2])
+def test_a_soil_column_without_values_is_no_soil_record(seed):
+    """Known truth: night respiration planted on air temperature 3 h earlier (soil heat
+    lags the air's daily wave by hours at a few cm, Campbell & Norman 1998, ch. 8 (m)).
+    A soil column holding no value at all (a probe lost all year) carries no evidence,
+    so the choice is the one without the column: the air temperature delayed by 3 h.
+    Before, the soil fit failed and the undelayed air temperature was used unwarned."""
+    rng, index, tair, _, is_night = _weather(seed=seed, days=90)
+    lagged = np.concatenate([np.full(6, tair[0]), tair[:-6]])      # 6 half-hours
+    nee = _night_nee(rng, index, lagged, is_night)
+    absent = choose_respiration_temperature(index, nee, tair, None, is_night)
+    empty = choose_respiration_temperature(index, nee, tair, np.full(tair.size, np.nan),
+                                           is_night)
+    assert empty.driver == absent.driver == "tair"
+    assert empty.delay_records == absent.delay_records == 6
+    assert empty.reason == absent.reason and "delayed by 3 h" in empty.reason
+
+
 def test_delayed_shifts_a_series_forward_in_time():
     values = np.array([1.0, 2.0, 3.0, 4.0])
     assert delayed(values, 2).tolist() == [1.0, 1.0, 1.0, 2.0]
@@ -363,3 +381,19 @@ def test_combined_driver_weight_opens_the_choice_only_on_a_contradiction():
     assert combined_driver_weight(1e-30, -1.5, 1.96) == 1e-30
     assert combined_driver_weight(0.2, float("nan"), 1.96) == 0.2
     assert combined_driver_weight(0.2, None, 1.96) == 0.2
+
+
+def test_conflict_note_names_each_line_of_evidence_by_the_statistic_sign():
+    """The statistic is the mean daily loss differential |e_other| - |e_central| over its
+    standard error (Diebold & Mariano 1995 (m)): positive means the temperature in use fits
+    the day better. A contradiction with a positive statistic is the night leaning to the
+    other temperature (combined_driver_weight(0.9, 3.0) is 1/2), so the warning must say
+    the night favours the other and the day the one in use, not the reverse."""
+    from fluxpart.partition.temperature_choice import conflict_note
+    from fluxpart.uncertainty import combined_driver_weight
+    assert combined_driver_weight(0.9, 3.0, 1.96) == 0.5       # night: tsoil; day: tair
+    reverse = conflict_note("tair", "tsoil", 3.0)
+    assert "night records favour tsoil" in reverse
+    assert "better with tair" in reverse and "tair in use" in reverse
+    usual = conflict_note("tair", "tsoil", -3.0)
+    assert "night records favour tair" in usual and "better with tsoil" in usual

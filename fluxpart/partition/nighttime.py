@@ -952,7 +952,8 @@ def nearest_year_notes(e0_annual: pd.DataFrame, respiration_driver: str) -> list
         donor = int(donors[np.flatnonzero(distance == distance.min())[0]])
         records = int(row["night_records"])
         notes.append(
-            f"nighttime partitioning: {year} is too short or has too few measured night "
+            f"nighttime partitioning: calendar year {year} (E0 is fitted per calendar year) "
+            f"is too short or has too few measured night "
             f"records ({records if records >= 0 else 'an unknown number of'} usable, "
             f"{int(row['windows_tried'])} E0 windows tried, none accepted) to estimate its "
             f"own temperature sensitivity on {respiration_driver}: E0 of {donor}, the "

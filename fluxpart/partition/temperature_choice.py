@@ -181,7 +181,8 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     tair : array_like
         Measured air temperature [°C].
     tsoil : array_like or None
-        Measured soil temperature [°C]; None when the input has none.
+        Measured soil temperature [°C]; None when the input has none (a series
+        without a single finite value is taken as none).
     is_night : array_like of bool
         Night records.
     **nighttime_settings
@@ -218,7 +219,9 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     """
     nee = np.asarray(nee_measured, dtype=float)
     night = np.asarray(is_night, dtype=bool)
-    if tsoil is None:
+    if tsoil is None or not np.isfinite(np.asarray(tsoil, dtype=float)).any():
+        # a soil column without a single value (a probe lost all along) is no soil record:
+        # air temperature, tested for a delay as where the column is absent
         return _air_delay(index, nee, tair, night, nighttime_settings)
     fits = {"tair": _night_fit(index, nee, tair, night, "tair", nighttime_settings)}
     try:
@@ -406,9 +409,27 @@ def daytime_evidence(nee_measured, is_day, modelled_central, modelled_other, day
 
 
 def conflict_note(central: str, other: str, statistic: float) -> str:
-    """The warning of a temperature choice the daytime records contradict."""
-    return (f"respiration temperature: the night records favour {central}, but the daytime "
-            f"method fits the measured daytime NEE better with {other} (day-by-day statistic "
-            f"{statistic:+.2f}, beyond ±{DAYTIME_EVIDENCE_Z}): neither is shown to drive "
-            "respiration through the whole day, so the temperature-driver part of the Reco "
-            "and GPP uncertainty weighs both equally (reco_uncertainty_temperature_driver)")
+    """The warning of a temperature choice the daytime records contradict.
+
+    Parameters
+    ----------
+    central, other : str
+        The temperature in use and the other candidate.
+    statistic : float
+        :func:`daytime_evidence` [1]: negative where the daytime records favour
+        `other` (the night records then favour `central`), positive where they favour
+        `central` (the night records then lean to `other`, which a temperature fixed by
+        ``respiration_driver`` or kept by the choice's evidence rules can leave in use).
+
+    Returns
+    -------
+    str
+        Names which temperature each line of evidence favours, and the statistic.
+    """
+    night, day = (central, other) if statistic < 0 else (other, central)
+    return (f"respiration temperature: the night records favour {night}, but the daytime "
+            f"method fits the measured daytime NEE better with {day} (day-by-day statistic "
+            f"{statistic:+.2f}, beyond ±{DAYTIME_EVIDENCE_Z}; {central} in use): neither is "
+            "shown to drive respiration through the whole day, so the temperature-driver part "
+            "of the Reco and GPP uncertainty weighs both equally "
+            "(reco_uncertainty_temperature_driver)")
