@@ -759,12 +759,7 @@ def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all
             gaps = np.flatnonzero(remaining & available)
             result = _similar_conditions_pass(values, usable, gaps, half_width_days * per_day,
                                               conditions, tables)
-        pass_mean, pass_count, pass_spread = result
-        found = pass_count >= min_donors
-        filled = gaps[found]
-        outputs.append((filled, step, half_width_days, pass_mean[found], pass_count[found],
-                        pass_spread[found]))
-        remaining[filled] = False
+        _take(outputs, remaining, gaps, step, half_width_days, result, min_donors)
         if not remaining.any():
             break
     if last_resort and remaining.any():
@@ -773,6 +768,17 @@ def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all
     if last_resort and night_class and remaining.any():
         outputs += _nearby_nights(values, donors, remaining, per_day, min_donors)
     return outputs
+
+
+def _take(outputs, remaining, gaps, step, half_width_days, result, min_donors) -> None:
+    """Keep a pass's fills of `gaps` with at least `min_donors` records: append them to
+    `outputs` and mark them filled in `remaining` (both modified in place)."""
+    pass_mean, pass_count, pass_spread = result
+    found = pass_count >= min_donors
+    filled = gaps[found]
+    outputs.append((filled, step, half_width_days, pass_mean[found], pass_count[found],
+                    pass_spread[found]))
+    remaining[filled] = False
 
 
 def _widened_course(values, course_donors, remaining, passes, per_day, diurnal_records,
@@ -784,22 +790,16 @@ def _widened_course(values, course_donors, remaining, passes, per_day, diurnal_r
     doubling the half-width each pass (a record of ten years needs at most five more
     passes) until the window covers the record.
     """
-    n = values.size
-    record_days = n / per_day
-    course = [k for step, k in passes if step == METHOD_DIURNAL_COURSE]
-    half_width = max(max(course, default=0), _WIDENING_STEP_DAYS)
+    record_days = values.size / per_day
+    widest = max((k for step, k in passes if step == METHOD_DIURNAL_COURSE), default=0)
+    half_width = max(widest, _WIDENING_STEP_DAYS)
     outputs = []
-    while remaining.any() and max(course, default=0) < record_days:
-        half_width = int(min(2 * half_width, np.ceil(record_days)))
-        course.append(half_width)
+    while remaining.any() and widest < record_days:
+        half_width = widest = int(min(2 * half_width, np.ceil(record_days)))
         gaps = np.flatnonzero(remaining)
-        pass_mean, pass_count, pass_spread = _diurnal_course_pass(
-            values, course_donors, gaps, half_width, per_day, diurnal_records)
-        found = pass_count >= min_donors
-        filled = gaps[found]
-        outputs.append((filled, METHOD_DIURNAL_COURSE, half_width, pass_mean[found],
-                        pass_count[found], pass_spread[found]))
-        remaining[filled] = False
+        _take(outputs, remaining, gaps, METHOD_DIURNAL_COURSE, half_width,
+              _diurnal_course_pass(values, course_donors, gaps, half_width, per_day,
+                                   diurnal_records), min_donors)
     return outputs
 
 
@@ -820,17 +820,15 @@ def _nearby_nights(values, donors, remaining, per_day, min_donors):
         reach = int(half_width * per_day)
         lower = np.searchsorted(positions, gaps - reach, side="left")
         upper = np.searchsorted(positions, gaps + reach, side="right")
-        found = (upper - lower) >= min_donors
-        filled = gaps[found]
-        mean = np.empty(filled.size)
-        spread = np.empty(filled.size)
-        for i, (a, b) in enumerate(zip(lower[found], upper[found], strict=True)):
-            picked = values[positions[a:b]]
-            mean[i] = picked.mean()
-            spread[i] = picked.std()
-        outputs.append((filled, METHOD_RADIATION, half_width, mean, (upper - lower)[found],
-                        spread))
-        remaining[filled] = False
+        count = upper - lower
+        mean = np.full(gaps.size, np.nan)
+        spread = np.full(gaps.size, np.nan)
+        # a loop over the few gaps no other pass could fill (0.03 s on ten years)
+        for i in np.flatnonzero(count >= min_donors):
+            picked = values[positions[lower[i]:upper[i]]]
+            mean[i], spread[i] = picked.mean(), picked.std()
+        _take(outputs, remaining, gaps, METHOD_RADIATION, half_width, (mean, count, spread),
+              min_donors)
         if half_width * per_day >= n:
             break
         half_width *= 2

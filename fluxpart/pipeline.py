@@ -74,6 +74,8 @@ __all__ = ["Result", "check_record", "load", "process", "process_site_config",
 #: Progress of :func:`process` at INFO level (``logging.getLogger("fluxpart")``).
 _LOG = logging.getLogger("fluxpart.pipeline")
 
+#: The respiration temperature a run does not use, of the one it uses.
+_OTHER_TEMPERATURE = {"tair": "tsoil", "tsoil": "tair"}
 _BUDGET_FLUXES = {"nee_filled": "nee", "gpp_nighttime": "gpp_nighttime",
                   "reco_nighttime": "reco_nighttime", "gpp_daytime": "gpp_daytime",
                   "reco_daytime": "reco_daytime"}
@@ -980,7 +982,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         except FluxpartError:
             return None
 
-    other = {"tair": "tsoil", "tsoil": "tair"}[temperature]
+    other = _OTHER_TEMPERATURE[temperature]
     other_reco = None
     if method_failure.failed(night):
         pass                     # no nighttime Reco to compare the other driver's with
@@ -1050,7 +1052,7 @@ def _daytime_driver_evidence(frame, screened, filled_drivers, central, is_night,
     _, nee_measured, _, night, day = central
     if method_failure.failed(day) or method_failure.failed(night):
         return None
-    other = "tair" if delay else {"tair": "tsoil", "tsoil": "tair"}[temperature]
+    other = "tair" if delay else _OTHER_TEMPERATURE[temperature]
     if f"{other}_filled" not in filled_drivers.columns:
         return None
     other_filled = _respiration_temperature(filled_drivers, other, 0, True)
