@@ -292,10 +292,14 @@ def _ustar_thresholds(frame, screened, is_night, site, config):
     table = found.table()
     missing_years = set(detected.index[detected.isna()])
     year_rows = table["period"] == "year"
+    # a year whose seasons all failed, detected from its nights pooled (ustar._pooled_years)
+    pooled_years = set(annual.index[annual["pooled"].eq(True)])
     table["source"] = np.where(
         table["year"].isin(missing_years - set(donors)) & year_rows, "fallback",
         np.where(table["year"].isin(set(donors)) & year_rows, "nearest_year",
-                 np.where(table["threshold"].isna(), "none", "detected")))
+                 np.where(table["threshold"].isna(), "none",
+                          np.where(table["year"].isin(pooled_years) & year_rows,
+                                   "pooled_year", "detected"))))
     table.loc[table["source"] == "fallback", "threshold"] = config.ustar_threshold
     borrowed = table["source"] == "nearest_year"
     table.loc[borrowed, "threshold"] = table.loc[borrowed, "year"].map(
@@ -315,6 +319,29 @@ def _ustar_thresholds(frame, screened, is_night, site, config):
             values = annual[f"threshold_p{percentile:02d}"].astype(float)
             scenarios[f"ustar_p{percentile:02d}"] = values.fillna(central)
     return table, found.bootstrap, central, scenarios
+
+
+def _ustar_warnings(table, config) -> list:
+    """Warnings for years whose u* threshold was not detected from their seasons."""
+    out = []
+    if (table["source"] == "fallback").any():
+        years = sorted(set(table.loc[table["source"] == "fallback", "year"]))
+        out.append(f"u* threshold not detectable in {', '.join(map(str, years))}: the fixed "
+                   f"ustar_threshold = {config.ustar_threshold} m s-1 was used there")
+    pooled = table[table["source"] == "pooled_year"]
+    if len(pooled):
+        out.append("u* threshold: no season gave one in " + ", ".join(
+            f"{year} ({threshold:.3f} m s-1)" for year, threshold in zip(
+                pooled["year"], pooled["threshold"], strict=True))
+            + "; it was found from each year's night records pooled as one season, which "
+            "assumes one threshold for the year")
+    borrowed = table[table["source"] == "nearest_year"]
+    if len(borrowed):
+        out.append("u* threshold not detectable in " + "; ".join(
+            f"{year}: {reason.split(',')[0]} ({threshold:.3f} m s-1) was used there (the same "
+            "tower and canopy)" for year, reason, threshold in zip(
+                borrowed["year"], borrowed["reason"], borrowed["threshold"], strict=True)))
+    return out
 
 
 def _geometry_and_screening(frame, site, config, interval):
@@ -650,16 +677,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     ustar_table, ustar_draws, central, scenario_thresholds = _ustar_thresholds(
         frame, screened, is_night, site, config)
     step("u* threshold")
-    if (ustar_table["source"] == "fallback").any():
-        years = sorted(set(ustar_table.loc[ustar_table["source"] == "fallback", "year"]))
-        warnings.append(f"u* threshold not detectable in {', '.join(map(str, years))}: the fixed "
-                        f"ustar_threshold = {config.ustar_threshold} m s-1 was used there")
-    borrowed = ustar_table[ustar_table["source"] == "nearest_year"]
-    if len(borrowed):
-        warnings.append("u* threshold not detectable in " + "; ".join(
-            f"{year}: {reason.split(',')[0]} ({threshold:.3f} m s-1) was used there (the same "
-            "tower and canopy)" for year, reason, threshold in zip(
-                borrowed["year"], borrowed["reason"], borrowed["threshold"], strict=True)))
+    warnings.extend(_ustar_warnings(ustar_table, config))
 
     filled_drivers = gapfill.fill_drivers(
         screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days,

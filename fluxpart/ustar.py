@@ -28,7 +28,7 @@ that year's records.
 from __future__ import annotations
 
 import functools
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 import pandas as pd
@@ -121,7 +121,8 @@ class ThresholdEstimate:
     annual : pandas.DataFrame
         One row per calendar year: ``year``, ``night_records``,
         ``seasons_used``, ``threshold_detected``, ``threshold`` [m s-1] and
-        ``reason``.
+        ``reason``; in :class:`UstarResult` also ``pooled`` (True where no season
+        gave a threshold and the year's night records pooled as one season did).
     strata : pandas.DataFrame
         One row per year, season and temperature class with the detector's
         own statistics (see the detector).
@@ -739,6 +740,10 @@ def detect_threshold(index, nee, ustar, tair, is_night, latitude, *, detector="m
                           f"{', '.join(repr(d) for d in DETECTORS)}")
     draws_table = bootstrap_threshold(nee, ustar, tair, is_night, seasons, detector=detector,
                                       draws=draws, seed=seed, **options)
+    estimate = replace(estimate, annual=estimate.annual.assign(pooled=False))
+    if not np.isfinite(estimate.annual["threshold_detected"].to_numpy(dtype=float)).any():
+        estimate, draws_table = _pooled_years(estimate, draws_table, nee, ustar, tair, is_night,
+                                              seasons, detector, draws, seed, options)
     seasonal_spread = _spread(draws_table[draws_table["period"] != "year"], ["year", "period"])
     annual_spread = _spread(draws_table[draws_table["period"] == "year"], ["year"])
 
@@ -757,6 +762,64 @@ def detect_threshold(index, nee, ustar, tair, is_night, latitude, *, detector="m
         settings["f_critical_seed"] = _CRITICAL_VALUE_SEED
     return UstarResult(seasonal=seasonal, annual=annual, bootstrap=draws_table,
                        strata=estimate.strata, settings=settings)
+
+
+def _pooled_years(estimate, draws_table, nee, ustar, tair, is_night, seasons, detector,
+                  draws, seed, options):
+    """Each year's night records as one season, where no year of the record gave a threshold.
+
+    Returns the estimate and the bootstrap table with the annual rows of those years
+    replaced by the pooled detection's (the seasonal rows, NaN, stay as they are).
+
+    Notes
+    -----
+    A season needs enough night records whose plateau flux the test can resolve from the
+    random error (:func:`moving_point_threshold`, steps 3 and 4). At a high-latitude site
+    the short summer nights hold a few hundred records and the long winter nights barely
+    any respiration, so every season can fail while the year's nights together resolve the
+    threshold. The threshold is a property of the tower and its canopy (Goulden et al. 1996
+    (m); Papale et al. 2006), which the year's nights share, so the pooled detection is a
+    better estimate than a value typical of towers in general (``Config.ustar_threshold``).
+    Our choice, since 0.20.0; it applies only where the run would otherwise take that fixed
+    value for every year (a year of a record where another year gave a threshold takes
+    that year's, :func:`nearest_detected_year`). On the generated polar-fen site-years of
+    ``tests/benchmarks/bench_generalisation.py`` (seeds 20, 34, 55; 0.103, 0.130 and
+    0.114 m s-1 planted) the pooled year gave 0.101, 0.132 and 0.103 m s-1 where the fixed
+    value was 0.2.
+    """
+    annual = estimate.annual
+    pooled_seasons = seasons.assign(season=SEASONS[0])
+    if detector == "moving_point":
+        pooled = moving_point_threshold(nee, ustar, tair, is_night, pooled_seasons, **options)
+    else:
+        pooled = change_point_threshold(nee, ustar, is_night, pooled_seasons, tair=tair,
+                                        **options)
+    found = pooled.annual.set_index("year")
+    gained = [int(year) for year in annual["year"]
+              if year in found.index and np.isfinite(found.loc[year, "threshold_detected"])]
+    if not gained:
+        return estimate, draws_table
+    annual = annual.copy()
+    rows = annual["year"].isin(gained)
+    for name in ("threshold_detected", "threshold"):
+        annual.loc[rows, name] = found.loc[annual.loc[rows, "year"], name].to_numpy()
+    annual.loc[rows, "pooled"] = True
+    annual.loc[rows, "reason"] = [
+        f"no season gave a threshold; the year's {int(found.loc[year, 'night_records'])} "
+        "night records pooled as one season gave it" for year in annual.loc[rows, "year"]]
+    pooled_draws = bootstrap_threshold(nee, ustar, tair, is_night, pooled_seasons,
+                                       detector=detector, draws=draws, seed=seed, **options)
+    pooled_draws = pooled_draws[(pooled_draws["period"] == "year")
+                                & pooled_draws["year"].isin(gained)]
+    kept = ~((draws_table["period"] == "year") & draws_table["year"].isin(gained))
+    rank = lambda table: table["period"].map(  # noqa: E731 - the table order of _bootstrap
+        {"year": 0, **{s: i + 1 for i, s in enumerate(SEASONS)}})
+    both = pd.concat([draws_table[kept], pooled_draws], ignore_index=True)
+    draws_table = (both.assign(_rank=rank(both))
+                   .sort_values(["draw", "year", "_rank"], kind="stable")
+                   .drop(columns="_rank").reset_index(drop=True))
+    return (ThresholdEstimate(seasonal=estimate.seasonal, annual=annual,
+                              strata=estimate.strata), draws_table)
 
 
 def change_point_critical_value(bins=50, alpha=0.05, edge_bins=3) -> float:

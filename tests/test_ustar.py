@@ -491,3 +491,59 @@ def test_a_stub_year_takes_the_neighbouring_years_threshold():
     assert np.array_equal(yearly.loc[2022, spread].to_numpy(dtype=float),
                           yearly.loc[2021, spread].to_numpy(dtype=float))
     assert yearly.loc[2022, "draws_valid"] == yearly.loc[2021, "draws_valid"]
+
+
+def test_a_year_whose_seasons_all_fail_is_detected_from_its_pooled_nights():
+    """Known-truth recovery on invented night data: with 2 % of the night records kept,
+    every season holds fewer than the 60 usable records the test needs even with its
+    temperature classes merged into one (20 u* classes of 3; Reichstein et al. 2005 (m)),
+    while the year holds about 180. No season gives a threshold, so the year's nights
+    pooled as one season give it (the threshold is a property of the tower and canopy;
+    Papale et al. 2006), flagged ``pooled``, with bootstrap percentiles of the pooled
+    draws. So few records read noisily (0.21-0.37 m s-1 over four seeds): the median of
+    four seeds is held to the tolerance; a record where a season gave one is not pooled."""
+    found = []
+    for seed in (21, 22, 23, 24):
+        result = _run(_night_record(seed, coverage=0.02), draws=30)
+        assert result.seasonal["threshold"].isna().all()
+        assert result.seasonal["reason"].str.contains("too few night records").all()
+        annual = result.annual.iloc[0]
+        assert bool(annual["pooled"]) and "pooled as one season" in annual["reason"]
+        assert annual["draws_valid"] >= 20
+        assert annual["threshold_p05"] <= annual["threshold_p95"]
+        drawn = result.bootstrap[result.bootstrap["period"] == "year"]
+        assert len(drawn) == 30 and drawn["threshold"].notna().sum() == annual["draws_valid"]
+        found.append(annual["threshold"])
+    assert abs(np.median(found) - PLANTED) <= TOLERANCE
+
+    full = _run(_night_record(21), draws=5)
+    assert not full.annual["pooled"].any()
+    assert full.seasonal["threshold"].notna().all()
+
+
+def test_pooled_year_threshold_reaches_the_table_and_warnings():
+    """The run marks a pooled year's threshold ``pooled_year`` in ``ustar.parquet`` and says
+    so in a warning; the fixed ustar_threshold is not used (invented demo year, 0.18 m s-1
+    planted, with 94 % of its night NEE removed at random, so no season holds the 60
+    usable night records the test needs)."""
+    from fluxpart import demo
+    from fluxpart.config import Config
+    from fluxpart.pipeline import _geometry_and_screening, _ustar_thresholds, _ustar_warnings
+
+    frame, _ = demo.site_year(seed=1)
+    rng = np.random.default_rng(3)
+    dark = ~(frame["rg"].to_numpy() > 20.0)
+    frame = frame.assign(nee=frame["nee"].where(~dark | (rng.random(len(frame)) < 0.06)))
+    config = Config(ustar_bootstrap_draws=10)
+    _, is_night, screens = _geometry_and_screening(frame, demo.site(), config, 30)
+    table, _, central, scenarios = _ustar_thresholds(frame, screens.screened, is_night,
+                                                     demo.site(), config)
+    yearly = table[table["period"] == "year"].set_index("year")
+    assert (yearly["source"] == "pooled_year").all()
+    assert np.isfinite(yearly["threshold"]).all()
+    assert central.to_numpy() == pytest.approx(yearly["threshold"].to_numpy())
+    assert central.to_numpy() != pytest.approx(config.ustar_threshold)
+    assert all(np.isfinite(values).all() for values in scenarios.values())
+    text = _ustar_warnings(table, config)
+    assert len(text) == 1 and "pooled as one season" in text[0]
+    assert "fixed ustar_threshold" not in text[0]
