@@ -55,7 +55,9 @@ class Config:
         the flagged fall-back for years where no threshold can be detected in any year
         of the record (since 0.17.0 a year without one takes the nearest year's detected
         threshold first: the threshold belongs to the tower and its canopy,
-        :func:`fluxpart.ustar.nearest_detected_year`). 0.2 m s-1 is our choice, a value
+        :func:`fluxpart.ustar.nearest_detected_year`; since 0.20.0, where no season of any
+        year gives one, each year's night records pooled as one season first,
+        :func:`fluxpart.ustar.detect_threshold`). 0.2 m s-1 is our choice, a value
         typical of the thresholds reported for forests and grasslands (m).
     ustar_temperature_classes : int
         Moving point test: night data of a season split into this many temperature

@@ -720,6 +720,11 @@ def detect_threshold(index, nee, ustar, tair, is_night, latitude, *, detector="m
     interpolation between order statistics (``pandas`` ``quantile``, the same
     as NumPy's default). The point estimate ``threshold`` is the detector's
     result on the data themselves, not the bootstrap median.
+
+    Where no season of any year gives a threshold, each year's night records
+    are tested again as one season (detector and bootstrap alike); a year so
+    found has ``pooled`` True in :attr:`UstarResult.annual` and says so in its
+    ``reason`` (since 0.20.0; see :func:`_pooled_years`).
     """
     index = datetime_index(index)
     seasons = assign_seasons(index, latitude)
