@@ -45,6 +45,10 @@ tair fitting VPD and RH whole records     input (tair)                        no
 earlier or later (column shifted)
 months whose NEE rises with light beside  input (nee sign)                    no
 months whose NEE falls with it
+NEE on straight lines over runs of        input (nee filled)                  no
+records (gaps filled by interpolation)
+air or soil temperature dropping to       input (tair zeros, tsoil zeros)     no
+exactly 0 and back by jumps (a code)
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no
@@ -67,7 +71,14 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from .column_faults import months_rising_with_light, nee_lag, swapped_temperatures, tair_lag
+from .column_faults import (
+    interpolated_nee,
+    months_rising_with_light,
+    nee_lag,
+    swapped_temperatures,
+    tair_lag,
+    zero_coded_temperature,
+)
 from .gapfill import QUALITY_A_WINDOW_DAYS
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
@@ -312,7 +323,8 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
 def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                    sources=None) -> list:
     """Air and soil temperature swapped, NEE shifted against Rg or of the opposite sign in
-    some months, air temperature shifted against RH and VPD (:mod:`.column_faults`)."""
+    some months or interpolated over its gaps, air temperature shifted against RH and VPD
+    (:mod:`.column_faults`)."""
     findings = []
     names = {**{name: name for name in screened.columns}, **(sources or {})}
     if {"tair", "tsoil"} <= set(screened.columns):
@@ -335,6 +347,17 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                         screened.index, names)
         if text:
             findings.append(Finding("input (nee sign)", text, False))
+    if "nee" in screened.columns:
+        text = interpolated_nee(screened["nee"].to_numpy(dtype=float), interval_minutes,
+                                screened.index, names)
+        if text:
+            findings.append(Finding("input (nee filled)", text, False))
+    for name in ("tair", "tsoil"):
+        if name in screened.columns:
+            text = zero_coded_temperature(screened[name].to_numpy(dtype=float), name,
+                                          screened.index, names)
+            if text:
+                findings.append(Finding(f"input ({name} zeros)", text, False))
     if {"tair", "rh", "vpd"} <= set(screened.columns):
         text = tair_lag(screened["tair"].to_numpy(dtype=float),
                         screened["rh"].to_numpy(dtype=float),

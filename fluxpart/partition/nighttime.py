@@ -264,8 +264,8 @@ def _temperature_term(temperature):
 # --------------------------------------------------------------------------- #
 def _sum_of_squares(temperature, flux, mask, rref, e0):
     d_rref, d_e0 = lloyd_taylor_derivatives(temperature, rref[:, None], e0[:, None])
-    residual = np.where(mask, flux - rref[:, None] * d_rref, 0.0)
     with np.errstate(over="ignore", invalid="ignore"):
+        residual = np.where(mask, flux - rref[:, None] * d_rref, 0.0)
         ssr = np.sum(residual * residual, axis=1)
     return ssr, residual, np.where(mask, d_rref, 0.0), np.where(mask, d_e0, 0.0)
 
