@@ -49,6 +49,8 @@ NEE on straight lines over runs of        input (nee filled)                  no
 records (gaps filled by interpolation)
 air or soil temperature dropping to       input (tair zeros, tsoil zeros)     no
 exactly 0 and back by jumps (a code)
+NEE present and accepted in every record  input (nee gapless)                 no
+for 60 days (filled or unscreened)
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no
@@ -72,6 +74,7 @@ import numpy as np
 import pandas as pd
 
 from .column_faults import (
+    gapless_nee,
     interpolated_nee,
     months_rising_with_light,
     nee_lag,
@@ -80,6 +83,7 @@ from .column_faults import (
     zero_coded_temperature,
 )
 from .gapfill import QUALITY_A_WINDOW_DAYS
+from .screening import site_flag
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
 
@@ -365,6 +369,18 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
         if text:
             findings.append(Finding("input (tair)", text, False))
     return findings
+
+
+def _gapless(frame: pd.DataFrame, interval_minutes: float, sources=None) -> list:
+    """NEE present and accepted by the site flag over two months without a gap, read
+    before the screening's spike test (:func:`.column_faults.gapless_nee`)."""
+    if "nee" not in frame.columns:
+        return []
+    rejected = site_flag(frame["nee_flag"]) if "nee_flag" in frame.columns else None
+    names = {**{name: name for name in frame.columns}, **(sources or {})}
+    text = gapless_nee(frame["nee"].to_numpy(dtype=float), interval_minutes, frame.index,
+                       rejected, names)
+    return [Finding("input (nee gapless)", text, False)] if text else []
 
 
 def _repeated_records(frame: pd.DataFrame, interval_minutes: float) -> list:
@@ -720,6 +736,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         repeated = _repeated_records(frame, interval_minutes)
         findings += repeated or _repeated_nee(frame, interval_minutes)
         findings += _column_faults(screened, potential, interval_minutes, sources)
+        findings += _gapless(frame, interval_minutes, sources)
     if (temperature_name in frame.columns
             and not np.isfinite(frame[temperature_name].to_numpy(dtype=float)).any()):
         # a fixed driver without a value: both methods fail on it (process refuses it)

@@ -14,7 +14,9 @@ import numpy as np
 import pandas as pd
 
 from fluxpart.column_faults import (
+    GAPLESS_DAYS,
     SOIL_RANGE_RATIO,
+    gapless_nee,
     interpolated_nee,
     months_rising_with_light,
     nee_lag,
@@ -316,3 +318,35 @@ def test_two_coded_zeros_are_not_enough():
     assert zero_coded_temperature(air, "tair") is None
     air[1500] = 0.0
     assert zero_coded_temperature(air, "tair") is not None
+
+
+def test_gapless_threshold_is_far_beyond_a_towers_longest_run():
+    # tower records keep about 65 % of their half-hours (Falge et al. 2001, Agric. For.
+    # Meteorol. 107: 43-69 (m)); even at 10 % of records lost at random, a run of
+    # present records as long as GAPLESS_DAYS has a chance of 0.9 ** n per start
+    records = GAPLESS_DAYS * PER_DAY
+    assert 17520 * 0.1 * 0.9 ** records < 1e-100
+
+
+def test_a_year_of_measured_nee_with_its_gaps_is_quiet():
+    _, gapped = gappy_flux_record(days=365)
+    assert gapless_nee(gapped, STEP) is None
+
+
+def test_a_gap_filled_column_is_named():
+    nee, gapped = gappy_flux_record(days=365)
+    stamps = pd.date_range("2021-01-01", periods=nee.size, freq=f"{STEP}min")
+    text = gapless_nee(nee, STEP, stamps, columns={"nee": "NEE_filled"})
+    assert text is not None and "'NEE_filled'" in text and "365 days" in text
+    assert "2021-01-01 00:00 .. 2021-12-31 23:30" in text
+
+
+def test_the_site_flag_makes_gaps_and_a_short_record_is_not_judged():
+    nee, _ = gappy_flux_record(days=365)
+    rejected = np.zeros(nee.size, dtype=bool)
+    rejected[::500] = True                     # the site's quality tests reject some
+    assert gapless_nee(nee, STEP, rejected=rejected) is None
+    # a month-long complete record: shorter than GAPLESS_DAYS, nothing to say
+    assert gapless_nee(nee[:30 * PER_DAY], STEP) is None
+    # hourly: the same days in half the records
+    assert gapless_nee(nee[::2], 2 * STEP) is not None
