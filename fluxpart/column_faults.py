@@ -1,7 +1,7 @@
 """Columns that pass every range but hold the wrong quantity or the wrong record.
 
-Two mapping faults that no plausible range can see, found by physics the true
-columns must obey:
+Mapping faults and filled or coded values that no plausible range can see, found by
+physics the true columns must obey:
 
 * air and soil temperature swapped (:func:`swapped_temperatures`): heat conduction
   damps the diurnal cycle of the soil with depth, so the soil column's days swing
@@ -12,7 +12,15 @@ columns must obey:
 * air temperature shifted by whole records against the humidity columns
   (:func:`tair_lag`): VPD is a function of temperature and humidity at one moment;
 * NEE whose sign changed within the record (:func:`months_rising_with_light`): in
-  months whose NEE rises with each brightening while other months' falls.
+  months whose NEE rises with each brightening while other months' falls;
+* NEE whose gaps were filled by linear interpolation (:func:`interpolated_nee`): a
+  measured flux's random error sets each record off the line through its neighbours;
+* NEE without a gap for two months (:func:`gapless_nee`): measured NEE loses records
+  every few days, so the column is gap-filled already or unscreened;
+* a temperature written 0 for a missing value (:func:`zero_coded_temperature`): no
+  temperature jumps to exactly 0 and back within a record;
+* the dew point mapped as air temperature (:func:`dew_point_as_tair`): the identity
+  e_s(dew point) = vapour pressure ties it to the VPD and RH columns.
 
 Each returns a one-line message (the caller's warning) or None. They only warn: the
 physics leaves rare true records on the far side of each criterion (see each
@@ -32,7 +40,8 @@ import pandas as pd
 
 from .variables import vpd_from_rh
 
-__all__ = ["GAPLESS_DAYS", "SOIL_RANGE_RATIO", "gapless_nee", "interpolated_nee",
+__all__ = ["GAPLESS_DAYS", "SOIL_RANGE_RATIO", "dew_point_as_tair", "gapless_nee",
+           "interpolated_nee",
            "months_rising_with_light", "nee_lag", "swapped_temperatures", "tair_lag",
            "zero_coded_temperature"]
 
@@ -686,3 +695,77 @@ def gapless_nee(nee, interval_minutes: float, stamps=None, rejected=None,
             "would count as measurements, their uncertainty left out) or raw fluxes without "
             "their quality flag: map the measured NEE with its gaps empty, and its flag as "
             "nee_flag")
+
+
+#: Largest departure of the median of (RH / 100) VPD / (e_s(tair) (1 - RH / 100)) from 1
+#: that marks the tair column as the dew point: the identity below holds to the written
+#: digits (a few tenths of a percent at the usual resolutions). Our choice.
+_DEW_POINT_IDENTITY = 0.03
+#: Smallest median departure of VPD / (e_s(tair) (1 - RH / 100)) from 1 needed beside
+#: it, so that a tair that fits VPD and RH (ratio 1) is never named. Our choice.
+_DEW_POINT_MISFIT = 0.15
+#: VPD implied by RH and tair [hPa] a record needs to be judged (dry enough that the
+#: ratio is not noise over a near-saturated record).
+_DEW_POINT_MIN_VPD = 2.0
+
+
+def dew_point_as_tair(tair, rh, vpd, columns=None) -> str | None:
+    """A message where the tair column holds the dew point, or None.
+
+    Parameters
+    ----------
+    tair : array_like
+        The column mapped as air temperature [°C].
+    rh : array_like
+        Relative humidity [%].
+    vpd : array_like
+        VPD column [hPa], as the file gives it.
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where VPD fits e_s(tair) (1 - RH / 100), or the dew-point
+        identity does not hold, or fewer than 48 records are dry enough to judge.
+
+    Notes
+    -----
+    With vapour pressure e, air temperature T and dew point Td, RH = 100 e / e_s(T),
+    VPD = e_s(T) - e and e_s(Td) = e by definition of the dew point (Campbell & Norman
+    1998, ch. 3 (m)). Where the tair column is Td and the VPD column was written from the
+    true T, the VPD computed from the columns, e_s(Td) (1 - RH / 100) = e (1 - RH / 100),
+    equals (RH / 100) VPD exactly, while it falls short of VPD by the factor RH / 100. A
+    median of (RH / 100) VPD over the computed value within 3 % of 1 together with a
+    median of VPD over it more than 15 % from 1 names the column: respiration and the
+    light response would read temperatures several K too low (on the example site the dew
+    point mapped as tair moved GPP by -122 and Reco by -119 g C m-2 without a word). A
+    file without a VPD column, or with one written from the dew point itself, cannot
+    show this.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 3 (m).
+    """
+    tair, rh, vpd = (np.asarray(v, dtype=float) for v in (tair, rh, vpd))
+    if not tair.size == rh.size == vpd.size:
+        return None
+    with np.errstate(invalid="ignore", over="ignore"):
+        computed = vpd_from_rh(rh, tair)
+        usable = (np.isfinite(computed) & np.isfinite(vpd) & np.isfinite(rh)
+                  & (computed > _DEW_POINT_MIN_VPD) & (vpd > 0))
+    if int(usable.sum()) < 48:
+        return None
+    misfit = float(np.median(vpd[usable] / computed[usable]))
+    identity = float(np.median(rh[usable] / 100.0 * vpd[usable] / computed[usable]))
+    if not (abs(identity - 1.0) <= _DEW_POINT_IDENTITY
+            and abs(misfit - 1.0) > _DEW_POINT_MISFIT):
+        return None
+    names = columns or {}
+    return (f"air temperature (column {names.get('tair', 'tair')!r}) looks like the dew "
+            f"point: the VPD column ({names.get('vpd', 'vpd')!r}) is a median {misfit:.2f} "
+            "times e_s(tair) (1 - RH / 100), while RH / 100 times it matches that to "
+            f"{abs(identity - 1.0):.1%} (the identity e_s(dew point) = vapour pressure, over "
+            f"{int(usable.sum())} records): map the air temperature as tair, or respiration "
+            "and the light response read temperatures several K too low")

@@ -51,6 +51,7 @@ air or soil temperature dropping to       input (tair zeros, tsoil zeros)     no
 exactly 0 and back by jumps (a code)
 NEE present and accepted in every record  input (nee gapless)                 no
 for 60 days (filled or unscreened)
+tair fitting VPD and RH as the dew point  input (tair dew point)              no
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no
@@ -74,6 +75,7 @@ import numpy as np
 import pandas as pd
 
 from .column_faults import (
+    dew_point_as_tair,
     gapless_nee,
     interpolated_nee,
     months_rising_with_light,
@@ -368,6 +370,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                         screened["vpd"].to_numpy(dtype=float), interval_minutes, names)
         if text:
             findings.append(Finding("input (tair)", text, False))
+        text = dew_point_as_tair(screened["tair"].to_numpy(dtype=float),
+                                 screened["rh"].to_numpy(dtype=float),
+                                 screened["vpd"].to_numpy(dtype=float), names)
+        if text:
+            findings.append(Finding("input (tair dew point)", text, False))
     return findings
 
 

@@ -16,6 +16,7 @@ import pandas as pd
 from fluxpart.column_faults import (
     GAPLESS_DAYS,
     SOIL_RANGE_RATIO,
+    dew_point_as_tair,
     gapless_nee,
     interpolated_nee,
     months_rising_with_light,
@@ -350,3 +351,33 @@ def test_the_site_flag_makes_gaps_and_a_short_record_is_not_judged():
     assert gapless_nee(nee[:30 * PER_DAY], STEP) is None
     # hourly: the same days in half the records
     assert gapless_nee(nee[::2], 2 * STEP) is not None
+
+
+def dew_point(air, rh):
+    """Dew point [°C] by the Magnus form with Tetens' constants (17.27, 237.3; Murray
+    1967 (m)): another form than the package's (Alduchov & Eskridge 1996), as a logger
+    would compute it."""
+    g = np.log(np.clip(rh, 1.0, 100.0) / 100.0) + 17.27 * air / (237.3 + air)
+    return 237.3 * g / (17.27 - g)
+
+
+def test_dew_point_mapped_as_air_temperature_is_named():
+    # e_s(Td) = e by definition, so e_s(Td) (1 - RH / 100) = (RH / 100) VPD
+    # (Campbell & Norman 1998, ch. 3 (m))
+    air, rh, vpd = humidity_record()
+    dew = np.round(dew_point(air, rh), 2)
+    text = dew_point_as_tair(dew, rh, vpd, columns={"tair": "Td_2m", "vpd": "VPD_hPa"})
+    assert text is not None and "'Td_2m'" in text and "dew point" in text
+
+
+def test_air_temperature_that_fits_vpd_and_rh_is_quiet():
+    air, rh, vpd = humidity_record()
+    assert dew_point_as_tair(air, rh, vpd) is None
+    # an air temperature from another sensor, 1.5 K warmer by day (a radiation error):
+    # VPD no longer fits exactly, but not as the dew point does
+    hours = np.arange(air.size) % PER_DAY * STEP / 60.0
+    warm = air + 1.5 * np.clip(np.sin(np.pi * (hours - 6.0) / 12.0), 0.0, None)
+    assert dew_point_as_tair(warm, rh, vpd) is None
+    # a VPD written from the dew point itself fits it and cannot show the mistake
+    dew = dew_point(air, rh)
+    assert dew_point_as_tair(dew, rh, vpd_from_rh(rh, dew)) is None
