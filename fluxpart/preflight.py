@@ -45,6 +45,13 @@ tair fitting VPD and RH whole records     input (tair)                        no
 earlier or later (column shifted)
 months whose NEE rises with light beside  input (nee sign)                    no
 months whose NEE falls with it
+NEE on straight lines over runs of        input (nee filled)                  no
+records (gaps filled by interpolation)
+air or soil temperature dropping to       input (tair zeros, tsoil zeros)     no
+exactly 0 and back by jumps (a code)
+NEE present and accepted in every record  input (nee gapless)                 no
+for 60 days (filled or unscreened)
+tair fitting VPD and RH as the dew point  input (tair dew point)              no
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no
@@ -67,8 +74,18 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from .column_faults import months_rising_with_light, nee_lag, swapped_temperatures, tair_lag
+from .column_faults import (
+    dew_point_as_tair,
+    gapless_nee,
+    interpolated_nee,
+    months_rising_with_light,
+    nee_lag,
+    swapped_temperatures,
+    tair_lag,
+    zero_coded_temperature,
+)
 from .gapfill import QUALITY_A_WINDOW_DAYS
+from .screening import site_flag
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
 
@@ -312,7 +329,8 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
 def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                    sources=None) -> list:
     """Air and soil temperature swapped, NEE shifted against Rg or of the opposite sign in
-    some months, air temperature shifted against RH and VPD (:mod:`.column_faults`)."""
+    some months or interpolated over its gaps, air temperature shifted against RH and VPD
+    (:mod:`.column_faults`)."""
     findings = []
     names = {**{name: name for name in screened.columns}, **(sources or {})}
     if {"tair", "tsoil"} <= set(screened.columns):
@@ -335,13 +353,41 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                         screened.index, names)
         if text:
             findings.append(Finding("input (nee sign)", text, False))
+    if "nee" in screened.columns:
+        text = interpolated_nee(screened["nee"].to_numpy(dtype=float), interval_minutes,
+                                screened.index, names)
+        if text:
+            findings.append(Finding("input (nee filled)", text, False))
+    for name in ("tair", "tsoil"):
+        if name in screened.columns:
+            text = zero_coded_temperature(screened[name].to_numpy(dtype=float), name,
+                                          screened.index, names)
+            if text:
+                findings.append(Finding(f"input ({name} zeros)", text, False))
     if {"tair", "rh", "vpd"} <= set(screened.columns):
         text = tair_lag(screened["tair"].to_numpy(dtype=float),
                         screened["rh"].to_numpy(dtype=float),
                         screened["vpd"].to_numpy(dtype=float), interval_minutes, names)
         if text:
             findings.append(Finding("input (tair)", text, False))
+        text = dew_point_as_tair(screened["tair"].to_numpy(dtype=float),
+                                 screened["rh"].to_numpy(dtype=float),
+                                 screened["vpd"].to_numpy(dtype=float), names)
+        if text:
+            findings.append(Finding("input (tair dew point)", text, False))
     return findings
+
+
+def _gapless(frame: pd.DataFrame, interval_minutes: float, sources=None) -> list:
+    """NEE present and accepted by the site flag over two months without a gap, read
+    before the screening's spike test (:func:`.column_faults.gapless_nee`)."""
+    if "nee" not in frame.columns:
+        return []
+    rejected = site_flag(frame["nee_flag"]) if "nee_flag" in frame.columns else None
+    names = {**{name: name for name in frame.columns}, **(sources or {})}
+    text = gapless_nee(frame["nee"].to_numpy(dtype=float), interval_minutes, frame.index,
+                       rejected, names)
+    return [Finding("input (nee gapless)", text, False)] if text else []
 
 
 def _repeated_records(frame: pd.DataFrame, interval_minutes: float) -> list:
@@ -697,6 +743,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         repeated = _repeated_records(frame, interval_minutes)
         findings += repeated or _repeated_nee(frame, interval_minutes)
         findings += _column_faults(screened, potential, interval_minutes, sources)
+        findings += _gapless(frame, interval_minutes, sources)
     if (temperature_name in frame.columns
             and not np.isfinite(frame[temperature_name].to_numpy(dtype=float)).any()):
         # a fixed driver without a value: both methods fail on it (process refuses it)

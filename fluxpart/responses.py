@@ -136,10 +136,12 @@ def lloyd_taylor_derivatives(temperature, rref, e0, *, tref_kelvin=LLOYD_TAYLOR_
     Lloyd, J. & Taylor, J. A. (1994). Functional Ecology 8:315–323.
     """
     term = _arrhenius_term(temperature, tref_kelvin, t0_kelvin)
+    # a trial step of the fit can overflow (E0 far out): the step is then rejected on its
+    # non-finite sum of squares, so NumPy's overflow note would only alarm the user
     with np.errstate(over="ignore", invalid="ignore"):
         d_rref = np.exp(np.asarray(e0, dtype=float) * term)
-    respiration = np.asarray(rref, dtype=float) * d_rref
-    return d_rref, respiration * term
+        respiration = np.asarray(rref, dtype=float) * d_rref
+        return d_rref, respiration * term
 
 
 def _vpd_excess(vpd, vpd0):

@@ -14,11 +14,16 @@ import numpy as np
 import pandas as pd
 
 from fluxpart.column_faults import (
+    GAPLESS_DAYS,
     SOIL_RANGE_RATIO,
+    dew_point_as_tair,
+    gapless_nee,
+    interpolated_nee,
     months_rising_with_light,
     nee_lag,
     swapped_temperatures,
     tair_lag,
+    zero_coded_temperature,
 )
 from fluxpart.preflight import _column_faults
 from fluxpart.variables import vpd_from_rh
@@ -211,3 +216,168 @@ def test_months_of_an_hourly_record_are_judged():
     flipped = np.where(stamps >= "2021-05-01", -nee, nee)
     text = months_rising_with_light(flipped[::2], rg[::2], potential[::2], stamps[::2])
     assert text is not None and "2021-05" in text
+
+
+def gappy_flux_record(seed=0, days=120, resolution=0.001):
+    """Invented half-hourly NEE with the random error of a measured flux, and gaps.
+
+    The random error of a half-hourly eddy-covariance flux: a few tenths of a µmol m-2 s-1
+    plus 10-20 % of the flux, independent between records (Hollinger & Richardson 2005,
+    Tree Physiology 25: 873-885 (m); Richardson et al. 2006, Agric. For. Meteorol. 136: 1-18
+    (m)). Gaps of 1-12 records cover about a third of the record, as at towers (common
+    practice: 20-60 % of half-hours are missing or rejected).
+    """
+    rng = np.random.default_rng(seed)
+    n = days * PER_DAY
+    hour = (np.arange(n) % PER_DAY) * STEP / 60.0
+    light = np.clip(np.sin(np.pi * (hour - 6.0) / 12.0), 0.0, None)
+    true = 3.0 - 15.0 * light
+    nee = true + rng.normal(0.0, 0.3 + 0.15 * np.abs(true))
+    nee = np.round(nee / resolution) * resolution
+    gapped = nee.copy()
+    position = 0
+    while position < n:
+        position += int(rng.integers(2, 20))
+        length = int(rng.integers(1, 13))
+        gapped[position:position + length] = np.nan
+        position += length
+    return nee, gapped
+
+
+def test_measured_nee_with_its_gaps_is_quiet():
+    _, gapped = gappy_flux_record()
+    assert interpolated_nee(gapped, STEP) is None
+    # no gaps at all: still the random error of every record
+    nee, _ = gappy_flux_record(seed=1)
+    assert interpolated_nee(nee, STEP) is None
+
+
+def test_gaps_filled_by_linear_interpolation_are_named():
+    _, gapped = gappy_flux_record()
+    filled = pd.Series(gapped).interpolate(limit_area="inside").round(3).to_numpy()
+    stamps = pd.date_range("2021-03-01", periods=filled.size, freq=f"{STEP}min")
+    text = interpolated_nee(filled, STEP, stamps, columns={"nee": "co2_flux"})
+    assert text is not None and "'co2_flux'" in text and "interpolation" in text
+    # unrounded floats (a caller's frame) too
+    exact = pd.Series(gapped).interpolate(limit_area="inside").to_numpy()
+    assert interpolated_nee(exact, STEP) is not None
+
+
+def test_a_resolution_too_coarse_for_the_noise_is_not_judged():
+    # rounded to 1 µmol m-2 s-1, three records fall on a line by chance too often to
+    # tell a fill from the noise: nothing is said, either way
+    _, gapped = gappy_flux_record(resolution=1.0)
+    filled = pd.Series(gapped).interpolate(limit_area="inside").round(0).to_numpy()
+    assert interpolated_nee(gapped, STEP) is None
+    assert interpolated_nee(filled, STEP) is None
+
+
+def test_a_stuck_value_is_left_to_the_stuck_sensor_check():
+    nee, _ = gappy_flux_record()
+    nee[1000:1200] = 2.5
+    assert interpolated_nee(nee, STEP) is None
+
+
+def test_preflight_names_interpolated_nee():
+    _, gapped = gappy_flux_record()
+    filled = pd.Series(gapped).interpolate(limit_area="inside").to_numpy()
+    index = pd.date_range("2021-03-01", periods=filled.size, freq=f"{STEP}min")
+    frame = pd.DataFrame({"nee": filled}, index=index)
+    stages = [f.stage for f in _column_faults(frame, np.zeros(filled.size), STEP)]
+    assert stages == ["input (nee filled)"]
+
+
+def test_air_temperature_written_zero_for_missing_is_named():
+    # 0 °C written for lost values: the air at 2 m does not change by more than 5 K
+    # within a half-hour and back within the next (heat capacity; fronts and downdrafts
+    # move it one way; Campbell & Norman 1998, ch. 8 (m))
+    air, _ = temperatures(0.05)
+    air = np.round(air, 2)
+    rng = np.random.default_rng(7)
+    coded = air.copy()
+    lost = rng.random(air.size) < 0.02
+    coded[lost] = 0.0
+    stamps = pd.date_range("2021-05-01", periods=air.size, freq=f"{STEP}min")
+    text = zero_coded_temperature(coded, "tair", stamps, columns={"tair": "t_air"})
+    assert text is not None and "'t_air'" in text and "exactly 0" in text
+    assert zero_coded_temperature(air, "tair", stamps) is None
+
+
+def test_air_temperature_passing_through_zero_is_quiet():
+    # a winter record crossing 0 °C smoothly, with true readings of exactly 0.00: each has
+    # neighbours within a few tenths of a K, so no jump, no finding
+    air, _ = temperatures(0.05)
+    winter = np.round(air - 12.0, 1)
+    assert np.count_nonzero(winter == 0.0) > 20
+    assert zero_coded_temperature(winter, "tair") is None
+
+
+def test_two_coded_zeros_are_not_enough():
+    air, _ = temperatures(0.05)
+    air = np.round(air, 2) + 20.0
+    air[[100, 900]] = 0.0
+    assert zero_coded_temperature(air, "tair") is None
+    air[1500] = 0.0
+    assert zero_coded_temperature(air, "tair") is not None
+
+
+def test_gapless_threshold_is_far_beyond_a_towers_longest_run():
+    # tower records keep about 65 % of their half-hours (Falge et al. 2001, Agric. For.
+    # Meteorol. 107: 43-69 (m)); even at 10 % of records lost at random, a run of
+    # present records as long as GAPLESS_DAYS has a chance of 0.9 ** n per start
+    records = GAPLESS_DAYS * PER_DAY
+    assert 17520 * 0.1 * 0.9 ** records < 1e-100
+
+
+def test_a_year_of_measured_nee_with_its_gaps_is_quiet():
+    _, gapped = gappy_flux_record(days=365)
+    assert gapless_nee(gapped, STEP) is None
+
+
+def test_a_gap_filled_column_is_named():
+    nee, gapped = gappy_flux_record(days=365)
+    stamps = pd.date_range("2021-01-01", periods=nee.size, freq=f"{STEP}min")
+    text = gapless_nee(nee, STEP, stamps, columns={"nee": "NEE_filled"})
+    assert text is not None and "'NEE_filled'" in text and "365 days" in text
+    assert "2021-01-01 00:00 .. 2021-12-31 23:30" in text
+
+
+def test_the_site_flag_makes_gaps_and_a_short_record_is_not_judged():
+    nee, _ = gappy_flux_record(days=365)
+    rejected = np.zeros(nee.size, dtype=bool)
+    rejected[::500] = True                     # the site's quality tests reject some
+    assert gapless_nee(nee, STEP, rejected=rejected) is None
+    # a month-long complete record: shorter than GAPLESS_DAYS, nothing to say
+    assert gapless_nee(nee[:30 * PER_DAY], STEP) is None
+    # hourly: the same days in half the records
+    assert gapless_nee(nee[::2], 2 * STEP) is not None
+
+
+def dew_point(air, rh):
+    """Dew point [°C] by the Magnus form with Tetens' constants (17.27, 237.3; Murray
+    1967 (m)): another form than the package's (Alduchov & Eskridge 1996), as a logger
+    would compute it."""
+    g = np.log(np.clip(rh, 1.0, 100.0) / 100.0) + 17.27 * air / (237.3 + air)
+    return 237.3 * g / (17.27 - g)
+
+
+def test_dew_point_mapped_as_air_temperature_is_named():
+    # e_s(Td) = e by definition, so e_s(Td) (1 - RH / 100) = (RH / 100) VPD
+    # (Campbell & Norman 1998, ch. 3 (m))
+    air, rh, vpd = humidity_record()
+    dew = np.round(dew_point(air, rh), 2)
+    text = dew_point_as_tair(dew, rh, vpd, columns={"tair": "Td_2m", "vpd": "VPD_hPa"})
+    assert text is not None and "'Td_2m'" in text and "dew point" in text
+
+
+def test_air_temperature_that_fits_vpd_and_rh_is_quiet():
+    air, rh, vpd = humidity_record()
+    assert dew_point_as_tair(air, rh, vpd) is None
+    # an air temperature from another sensor, 1.5 K warmer by day (a radiation error):
+    # VPD no longer fits exactly, but not as the dew point does
+    hours = np.arange(air.size) % PER_DAY * STEP / 60.0
+    warm = air + 1.5 * np.clip(np.sin(np.pi * (hours - 6.0) / 12.0), 0.0, None)
+    assert dew_point_as_tair(warm, rh, vpd) is None
+    # a VPD written from the dew point itself fits it and cannot show the mistake
+    dew = dew_point(air, rh)
+    assert dew_point_as_tair(dew, rh, vpd_from_rh(rh, dew)) is None

@@ -554,6 +554,23 @@ def test_kelvin_temperature_rejected(rng):
         partition_nighttime(index, nee, filled, temperature + 273.15, temperature, night)
 
 
+def test_hot_desert_soil_within_the_readers_range_is_fitted(rng):
+    """A bare desert soil at 2-5 cm reads 70-80 °C on summer afternoons (the ground surface
+    above 90 °C in Death Valley (m)); the reader accepts soil up to
+    VARIABLES["tsoil"].maximum, so the fit must too (regression: values of 70-80 °C were
+    refused here as "temperature_measured: ... outside -90..70 °C, first at row ...")."""
+    from fluxpart.variables import VARIABLES
+
+    index, nee, filled, temperature, night, _ = _synthetic(rng, end="2021-01-31 23:30")
+    hot = temperature.copy()
+    day = ~np.asarray(night)
+    hot[np.flatnonzero(day)[:20]] = VARIABLES["tsoil"].maximum - 1.0
+    fit = partition_nighttime(index, nee, filled, temperature, hot, night)
+    assert np.all(np.isfinite(fit.reco))
+    with pytest.raises(ImplausibleValueError, match="temperature_filled"):
+        partition_nighttime(index, nee, filled, temperature, hot + 273.15, night)
+
+
 def test_misaligned_input_raises(rng):
     """An array of the wrong length names the argument."""
     index, nee, filled, temperature, night, _ = _synthetic(rng, end="2021-01-31 23:30")

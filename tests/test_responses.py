@@ -104,3 +104,20 @@ def test_lloyd_taylor_does_not_modify_inputs():
     lloyd_taylor(temperature, 2.0, 200.0)
     lloyd_taylor_derivatives(temperature, 2.0, 200.0)
     np.testing.assert_array_equal(temperature, before)
+
+
+def test_lloyd_taylor_derivatives_of_a_runaway_trial_step_overflow_without_a_warning():
+    """A Levenberg–Marquardt trial step can take E0 far out; exp(E0 (1/(Tref - T0) -
+    1/(T - T0))) (Lloyd & Taylor 1994, eq. 11) then overflows to inf, the step's sum of
+    squares is not finite and the step is rejected. No NumPy overflow note reaches the
+    user (regression: 'RuntimeWarning: overflow encountered in multiply' printed 10 times
+    by a run whose NEE gaps had been filled by linear interpolation)."""
+    import warnings
+
+    from fluxpart.responses import lloyd_taylor_derivatives
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        d_rref, d_e0 = lloyd_taylor_derivatives(np.array([30.0, 35.0]), np.array([[1e300]]),
+                                                np.array([[5e4]]))
+    assert np.all(d_rref > 0) and np.all(np.isinf(d_e0))

@@ -51,6 +51,7 @@ from ..errors import (
     LengthMismatchError,
 )
 from ..responses import lloyd_taylor, lloyd_taylor_derivatives
+from ..variables import VARIABLES
 
 __all__ = [
     "LOW_LIGHT_MIN_RUN_DAYS",
@@ -82,8 +83,12 @@ _LM_FTOL = 1e-14
 _LM_LAMBDA_START = 1e-3
 _LM_LAMBDA_GIVE_UP = 1e12
 # Driving temperatures outside this range are not in °C (kelvin or a unit
-# mix-up) [°C]; our choice, wider than any plausible air or soil temperature.
-_TEMPERATURE_LIMITS = (-90.0, 70.0)
+# mix-up) [°C]; our choice, no narrower than the plausible air and soil temperatures of
+# fluxpart.variables (a bare desert soil at 2-5 cm reaches 70-80 °C, which the reader
+# accepts: the former upper limit of 70 °C refused such a record here, naming an
+# internal array and row). Lloyd-Taylor and its exponential equivalent stay finite far
+# beyond (T - T0 > 0; 2 (Tref - T0) > T - Tref up to 122 °C).
+_TEMPERATURE_LIMITS = (-90.0, max(VARIABLES["tair"].maximum, VARIABLES["tsoil"].maximum))
 _RESPIRATION_DRIVERS = ("tair", "tsoil")
 _E0_METHODS = ("joint", "best_windows")
 
@@ -264,8 +269,8 @@ def _temperature_term(temperature):
 # --------------------------------------------------------------------------- #
 def _sum_of_squares(temperature, flux, mask, rref, e0):
     d_rref, d_e0 = lloyd_taylor_derivatives(temperature, rref[:, None], e0[:, None])
-    residual = np.where(mask, flux - rref[:, None] * d_rref, 0.0)
     with np.errstate(over="ignore", invalid="ignore"):
+        residual = np.where(mask, flux - rref[:, None] * d_rref, 0.0)
         ssr = np.sum(residual * residual, axis=1)
     return ssr, residual, np.where(mask, d_rref, 0.0), np.where(mask, d_e0, 0.0)
 
