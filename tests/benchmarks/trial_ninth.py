@@ -169,7 +169,16 @@ noise; figures on the code before trial9 unless said):
   built: it changes every fill). The interval misses: the artificial gaps of the
   gap-filling error copy the real gaps' time of day on other days (README), not their
   conditions, so they are scored on ordinary afternoons with donors on both sides.
-- D, filled nights -11.8 / -3.3 in the ``noheat`` runs too: not analysed further.
+- the filled nights' deficit left once the planted physics is off (D ``noheat`` -11.8 /
+  -3.3, G ``sharp`` -9.5 / -9.4, M ``nodrain`` -8.9 / -3.0 g C m-2): twilight. Night is Rg
+  below 10 W m-2 (``night_rg_threshold``), so records with the sun up and photosynthesis
+  under way are night donors and enter the night fits, as trial 8 found. With
+  ``--processing 'night_rg_threshold = 1'``: D ``noheat`` NEE -8.5 / +4.1 -> -2.1 / +7.7
+  (filled nights -2.9 / +2.5), nighttime Reco -2.7 / -2.1 -> -1.3 / -0.2 %; G ``sharp``
+  -7.6 -> -2.5 in 2021 (Reco -2.6 -> -1.1 %; 2022 +16.0 -> +29.3, its outage filled
+  +31.8); M ``nodrain`` -9.7 / -4.2 -> -4.6 / +0.5, nighttime Reco -3.5 / -1.5 -> -0.6 /
+  +0.2 %. (A night of the sun below the horizon for the fits was tried once and was worse on
+  the calibration benchmark, DEVELOPERS.md; the two trials say it deserves another look.)
 - S, daytime Reco +7.1 / +9.6 %: the light-response form. ``rect`` (Bannister b = 1, the
   rectangular hyperbola the daytime method fits): -2.6 / -5.2 %; ``nopeak`` (no MMRT
   optimum): +5.8 / +5.7 %; ``mildvpd``: +6.0 / +5.2 %; ``onetemp``: +9.3 / +11.7 %. A sharply
