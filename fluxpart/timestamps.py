@@ -404,6 +404,33 @@ def _date_part(time_format: str) -> str | None:
     return date
 
 
+def _finer_stamp(stamp: str, time_format: str) -> str:
+    """A hint where `stamp` carries seconds or fractions of a second that `time_format`
+    lacks ("2021-06-01 13:30:00.000" under "%Y-%m-%d %H:%M:%S", as databases and many
+    loggers write them), or is an ISO 8601 ordinal date ("2021-152T13:30", year and day
+    of year, ISO 8601:2004 section 4.1.2.3 (m)) under "ISO8601", which the parser behind
+    that setting does not read; else ''."""
+    text = stamp.strip()
+    candidates = []
+    if time_format.upper() == "ISO8601":
+        candidates = ["%Y-%jT%H:%M", "%Y-%jT%H:%M:%S", "%Y-%j %H:%M", "%Y-%j %H:%M:%S"]
+    elif time_format.endswith("%S"):
+        candidates = [time_format + ".%f", time_format + ",%f"]
+    elif time_format.endswith("%M"):
+        candidates = [time_format + ":%S", time_format + ":%S.%f"]
+    for candidate in candidates:
+        try:
+            datetime.strptime(text, candidate)
+        except ValueError:
+            continue
+        what = ("an ISO 8601 ordinal date (year and day of year)"
+                if "%j" in candidate and "%j" not in time_format
+                else "fractions of a second" if candidate.endswith("%f")
+                else "seconds")
+        return f"the stamps carry {what}: set time_format = {setting_text(candidate)}"
+    return ""
+
+
 def _other_format(stamp: str, time_format: str) -> str:
     """A hint where a stamp fails only for a 12-hour clock or a two-digit year, else ''."""
     def parses(candidate):
@@ -634,6 +661,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "and with [input] time_zone = \"Area/City\"")
         elif _numeric_clock(text):
             hint = "; " + _numeric_clock(text)
+        elif _finer_stamp(text.iloc[first], time_format):
+            hint = "; " + _finer_stamp(text.iloc[first], time_format)
         elif _fraction_hint(text[failed], time_format):
             hint = "; " + _fraction_hint(text[failed], time_format)
         elif _other_format(text.iloc[first], time_format):
@@ -810,6 +839,16 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
                     "(00:00 after 23:30 of the same date): write midnight as 24:00 of that "
                     "day or as 00:00 of the next day in a copy of the file (sorting would "
                     "place each such record a day early)")
+        elif (time_zone is not None and -float(steps[row - 1]) <= 3600.0
+              and stamps[row].month in (3, 4, 9, 10, 11)):
+            # the autumn hour that civil time repeats is resolved by record order (its
+            # first records daylight-saving time); a file sorted by civil stamp interleaves
+            # the two hours, which sorting again cannot undo
+            hint = ("in civil time of [input] time_zone the autumn hour repeats and is read "
+                    "by record order (its first records daylight-saving time, the next "
+                    "standard time); the file seems sorted by civil stamp, which interleaves "
+                    "the two hours: put that hour's daylight-saving records before its "
+                    "standard-time ones, as the logger wrote them, in a copy of the file")
         else:
             hint = "sort a copy of the file by time"
         raise NonMonotonicTimestampError(
