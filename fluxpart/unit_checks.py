@@ -944,6 +944,13 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
             refuse_soil = _tsoil_message(converted, units, columns, interval_minutes)
             if refuse_soil:
                 refusals["tsoil"] = refuse_soil
+            elif "tsoil" in columns:
+                # a month of soil in °F (a logger program changed for a while): the
+                # whole record's median hides it, the month's alone does not
+                warnings += _changed_within(
+                    lambda part, sun: _tsoil_message(part, units, columns, interval_minutes),
+                    "tsoil", columns, "a soil temperature in °F or K (a median above 25 °C "
+                    "and more than 15 K above the air's)", converted, potential, stamps)
             refuse, warn = _vpd_messages(converted, units, columns, interval_minutes)
             if refuse:
                 refusals["vpd"] = refuse

@@ -226,3 +226,39 @@ def test_stamps_finer_than_their_format_name_the_format_that_reads_them(
     assert "integers" not in str(caught.value)
     assert list(_parse(stamps, wanted)) == [pd.Timestamp("2021-06-01 00:30"),
                                             pd.Timestamp("2021-06-01 01:00")]
+
+
+def test_a_month_of_soil_in_fahrenheit_is_named(tmp_path):
+    """A soil temperature written in °F for one month (a logger program changed for a
+    while): the whole record's median hides it, and it was read 1.8 T + 32 too warm
+    without a word (the invented example's July: with respiration_driver = "tsoil",
+    daytime Reco +38.6 and nighttime Reco +12.8 g C m-2). The month alone fails the
+    soil-against-air check (°F = 1.8 °C + 32, NIST SP 811 (m)) and is named; a record
+    in °C throughout gets no such warning (known truth)."""
+    starts = pd.date_range("2021-05-01 00:00", periods=48 * 92, freq="30min")
+    records = _records(starts)
+    records["t_soil"] = np.round(records["t_air"] - 1.0, 2)
+    ends = (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M")
+    _, plain = _read(_write(tmp_path / "c.csv", records, ends))
+    assert not [w for w in plain.warnings if "tsoil" in w]
+    june = np.asarray(starts.month == 6)
+    records.loc[june, "t_soil"] = np.round(records.loc[june, "t_soil"] * 1.8 + 32.0, 2)
+    _, report = _read(_write(tmp_path / "f.csv", records, ends))
+    assert any("(tsoil): in 1 month(s) (2021-06) the values alone look like a soil "
+               "temperature in °F or K" in w for w in report.warnings)
+
+
+def test_a_soil_the_reader_keeps_is_not_refused_by_the_respiration_fit():
+    """A desert soil near the surface reaches 70-80 °C in summer (the ground surface of
+    Death Valley above 90 °C (m)); the reader and the screening keep soil values up to
+    their plausible maximum, but the nighttime fit refused a driver above 70 °C as "not
+    in °C", stopping the run with "temperature_measured: ... values outside -90..70 °C,
+    first at row N" (an argument name and a row of the frame, not a column or line of
+    the file). Its limit now reaches the reader's; kelvin is still refused."""
+    from fluxpart.partition.nighttime import _as_temperature
+    from fluxpart.variables import VARIABLES
+    hottest = VARIABLES["tsoil"].maximum
+    values = np.array([20.0, 55.0, hottest - 0.5, hottest])
+    assert np.array_equal(_as_temperature("temperature", values, 4), values)
+    with pytest.raises(ImplausibleValueError, match="kelvin"):
+        _as_temperature("temperature", values + 273.15, 4)

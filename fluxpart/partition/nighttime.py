@@ -51,6 +51,7 @@ from ..errors import (
     LengthMismatchError,
 )
 from ..responses import lloyd_taylor, lloyd_taylor_derivatives
+from ..variables import VARIABLES
 
 __all__ = [
     "LOW_LIGHT_MIN_RUN_DAYS",
@@ -82,8 +83,10 @@ _LM_FTOL = 1e-14
 _LM_LAMBDA_START = 1e-3
 _LM_LAMBDA_GIVE_UP = 1e12
 # Driving temperatures outside this range are not in °C (kelvin or a unit
-# mix-up) [°C]; our choice, wider than any plausible air or soil temperature.
-_TEMPERATURE_LIMITS = (-90.0, 70.0)
+# mix-up) [°C]; our choice, wider than any plausible air or soil temperature, and
+# reaching the reader's plausible ranges (a soil of 70-80 °C, which the reader and the
+# screening keep, had stopped the run naming this module's argument).
+_TEMPERATURE_LIMITS = (-90.0, max(VARIABLES["tair"].maximum, VARIABLES["tsoil"].maximum))
 _RESPIRATION_DRIVERS = ("tair", "tsoil")
 _E0_METHODS = ("joint", "best_windows")
 
