@@ -972,6 +972,7 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
     """
     describe = describe or (lambda position: f"record {position + 1}")
     steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(minutes=1), dtype=float)
+    setting = declared is not None
     if declared is None:
         if steps.size == 0:
             raise SpacingError("the file has a single record, so its interval cannot be "
@@ -994,11 +995,21 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
         if seconds:
             raise SpacingError(seconds)
         found = sorted({f"{s:g}" for s in steps[irregular][:10]})
+        # most steps off a declared interval: the setting, not the file, is at odds
+        values, counts = np.unique(steps, return_counts=True)
+        typical = float(values[np.argmax(counts)])
+        fix = (f"set interval_minutes = {typical:g}, or remove it to have the interval "
+               "read from the stamps" if typical in INTERVALS_MINUTES else
+               "fluxpart needs 30- or 60-minute records: average the file to 30 or 60 "
+               "minutes first")
+        mismatch = (f"; [input] interval_minutes = {declared} is set, while most stamps are "
+                    f"{typical:g} minutes apart: {fix}"
+                    if setting and 2 * irregular.size >= steps.size else "")
         raise SpacingError(
             f"stamps are {steps[irregular[0]]:g} minutes apart at {describe(row)} "
             f"({stamps[row - 1]} -> {stamps[row]}), not a whole multiple of the "
             f"{declared}-minute interval; {irregular.size} such step(s), spacings found: "
-            f"{', '.join(found)} minutes")
+            f"{', '.join(found)} minutes{mismatch}")
     return int(declared)
 
 

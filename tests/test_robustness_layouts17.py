@@ -23,6 +23,7 @@ from fluxpart.errors import (
     InputFileError,
     MissingColumnError,
     NonMonotonicTimestampError,
+    SpacingError,
     TimestampError,
     UnitError,
 )
@@ -262,3 +263,23 @@ def test_a_soil_the_reader_keeps_is_not_refused_by_the_respiration_fit():
     assert np.array_equal(_as_temperature("temperature", values, 4), values)
     with pytest.raises(ImplausibleValueError, match="kelvin"):
         _as_temperature("temperature", values + 273.15, 4)
+
+
+@pytest.mark.parametrize("declared, step, fix", [
+    (60, 30, "set interval_minutes = 30, or remove it"),
+    (30, 10, "average the file to 30 or 60 minutes first"),
+])
+def test_a_declared_interval_at_odds_with_the_stamps_names_the_setting(
+        tmp_path, declared, step, fix):
+    """`interval_minutes = 60` on a file of 30-minute records was refused as "stamps are 30
+    minutes apart ... not a whole multiple of the 60-minute interval", without naming the
+    setting the 60 came from; every step of the file is off it. Now the setting and the
+    file's own step are named (the steps counted on invented stamps: known truth)."""
+    starts = pd.date_range("2021-06-01 00:00", periods=48 * 3 * 30 // step, freq=f"{step}min")
+    records = _records(starts)
+    ends = (starts + pd.Timedelta(minutes=step)).strftime("%Y-%m-%d %H:%M")
+    path = _write(tmp_path / "a.csv", records, ends)
+    with pytest.raises(SpacingError, match=re.escape(
+            f"[input] interval_minutes = {declared} is set, while most stamps are {step} "
+            f"minutes apart: ") + ".*" + re.escape(fix)):
+        _read(path, interval_minutes=declared)
