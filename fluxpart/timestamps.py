@@ -356,10 +356,18 @@ def _hour_24(text: pd.Series, failed: np.ndarray, time_format: str
 #: Numeric clocks users export instead of dates: name, unit in seconds, epoch, plausible
 #: range of values (stamps of 1971-2100), how a spreadsheet or a logger writes them.
 _NUMERIC_CLOCKS = (
-    ("seconds since 1970-01-01 UTC (Unix time)", 1.0, "1970-01-01", (3.2e7, 4.11e9)),
-    ("milliseconds since 1970-01-01 UTC (Unix time)", 1e-3, "1970-01-01", (3.2e10, 4.11e12)),
+    ("seconds since 1970-01-01 UTC (Unix time)", 1.0, "1970-01-01", (3.2e7, 4.11e9), 0.0),
+    ("milliseconds since 1970-01-01 UTC (Unix time)", 1e-3, "1970-01-01", (3.2e10, 4.11e12),
+     0.0),
     ("spreadsheet day numbers (days since 1899-12-30, as Excel and LibreOffice count)",
-     86400.0, "1899-12-30", (26000.0, 73051.0)),
+     86400.0, "1899-12-30", (26000.0, 73051.0), 0.0),
+    # MATLAB's datenum counts days from year 0 (719529 is 1970-01-01, MATLAB
+    # documentation of datenum (m)); astronomers' Julian dates count days from noon UT
+    # of 1 January 4713 BC (2440587.5 is 1970-01-01 00:00 UT, Meeus 1998 (m))
+    ("MATLAB day numbers (datenum, days since year 0)", 86400.0, "1970-01-01",
+     (700000.0, 767000.0), 719529.0),
+    ("Julian dates (days since noon UTC of 1 January 4713 BC)", 86400.0, "1970-01-01",
+     (2.42e6, 2.49e6), 2440587.5),
 )
 
 
@@ -375,13 +383,14 @@ def _numeric_clock(text: pd.Series) -> str:
     if numbers.size < 3 or not np.isfinite(numbers).all():
         return ""
     step = np.median(np.diff(numbers))
-    for name, seconds, epoch, (low, high) in _NUMERIC_CLOCKS:
+    for name, seconds, epoch, (low, high), shift in _NUMERIC_CLOCKS:
         if not (low <= numbers.min() and numbers.max() <= high):
             continue
         minutes = step * seconds / 60.0
         if not any(abs(minutes - m) < 0.01 for m in (30.0, 60.0)):
             continue
-        first = pd.Timestamp(epoch) + pd.Timedelta(seconds=float(numbers[0]) * seconds)
+        first = pd.Timestamp(epoch) + pd.Timedelta(seconds=(float(numbers[0]) - shift)
+                                                   * seconds)
         zone = " UTC" if "UTC" in name else ""
         return (f"the stamps are {name}, not dates ({text.iloc[0].strip()!r} is "
                 f"{first.round('min'):%Y-%m-%d %H:%M}{zone}), which fluxpart does not read: "

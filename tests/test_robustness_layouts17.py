@@ -283,3 +283,19 @@ def test_a_declared_interval_at_odds_with_the_stamps_names_the_setting(
             f"[input] interval_minutes = {declared} is set, while most stamps are {step} "
             f"minutes apart: ") + ".*" + re.escape(fix)):
         _read(path, interval_minutes=declared)
+
+
+@pytest.mark.parametrize("origin, shift, named", [
+    ("MATLAB", 719529.0, "MATLAB day numbers (datenum, days since year 0)"),
+    ("Julian", 2440587.5, "Julian dates (days since noon UTC of 1 January 4713 BC)"),
+])
+def test_matlab_and_julian_day_numbers_are_named_with_their_date(origin, shift, named):
+    """Stamps exported as MATLAB datenums (719529 = 1970-01-01, MATLAB documentation (m))
+    or astronomers' Julian dates (2440587.5 = 1970-01-01 00:00 UT, Meeus 1998 (m)) had
+    been told "decimal fractions (a decimal day of year or hour?)"; now the count is
+    named with the date of the first stamp, as for Unix time and spreadsheet days."""
+    ends = pd.date_range("2021-06-01 00:30", periods=96, freq="30min")
+    days = (ends - pd.Timestamp("1970-01-01")) / pd.Timedelta(days=1) + shift
+    with pytest.raises(TimestampError, match=re.escape(named) + r", not dates \('[\d.]+' is "
+                       r"2021-06-01 00:30"):
+        _parse([f"{d:.6f}" for d in days], "%Y%m%d%H%M")
