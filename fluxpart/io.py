@@ -1479,8 +1479,14 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             # a header line of a changed logger program holds more fields than the first
             _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
             header_line = next(iter(text.splitlines()[rows_before_header:]), "")
-            raise InputFileError(_parser_message(path, delimiter, str(error),
-                                                 header_line)) from None
+            found = re.search(r"Expected (\d+) fields in line (\d+), saw", str(error))
+            # a header of one cell holding another separator is a delimiter setting's
+            # matter (_parser_message), not a layout changed mid-file
+            changed = (found and (delimiter == _WHITESPACE or delimiter in header_line)
+                       and _changed_layout(path, text.splitlines(), int(found.group(2)),
+                                           int(found.group(1)), delimiter))
+            raise InputFileError(changed or _parser_message(path, delimiter, str(error),
+                                                            header_line)) from None
         # a quote opened and never closed: the parser names no line of the file
         text_lines = text.splitlines()
         number = _unclosed_quote_line(parsed.splitlines())
@@ -1738,6 +1744,32 @@ def _field_count(line: str, delimiter: str) -> int:
     return len(next(csv.reader([line], delimiter=delimiter), []))
 
 
+#: Lines from which on every line has another field count than the header before that is
+#: taken for a logger program changed without a new header line, not for records cut
+#: short; our choice (a day of hourly records), far more than a few interrupted writes.
+_CHANGED_LAYOUT_LINES = 24
+
+
+def _changed_layout(path: Path, text_lines: list, line: int, width: int,
+                    delimiter: str) -> str:
+    """The refusal where every non-blank line from `line` (1-based) to the end has one
+    field count other than the header's `width` (a logger program that added or removed
+    a column and wrote no new header line), else ''."""
+    rest = [candidate for candidate in text_lines[line - 1:] if candidate.strip()]
+    if len(rest) < _CHANGED_LAYOUT_LINES:
+        return ""
+    counts = {_field_count(candidate, delimiter) for candidate in rest}
+    if len(counts) != 1 or width in counts:
+        return ""
+    fields = counts.pop()
+    what = "added" if fields > width else "removed"
+    return (f"input file {str(path)!r}: every line from line {line} on ({len(rest)} lines) "
+            f"has {fields} fields where the header has {width}: a logger program that "
+            f"{what} a column and wrote no new header line? Split the file at line {line} in "
+            "a copy, give the part from there its own header line, and list both parts in "
+            "[input] path")
+
+
 def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndarray,
                         delimiter: str, warnings, named: int | None = None
                         ) -> tuple[pd.DataFrame, np.ndarray]:
@@ -1760,6 +1792,9 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
     inner = [row for row in short if row != last]
     if inner:
         row = inner[0]
+        changed = _changed_layout(path, text_lines, int(lines[row]), width, delimiter)
+        if changed:
+            raise InputFileError(changed)
         raise InputFileError(
             f"input file {str(path)!r}: line {int(lines[row])} "
             f"({_shown_line(text_lines[lines[row] - 1])!r}) has "

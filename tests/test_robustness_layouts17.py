@@ -299,3 +299,36 @@ def test_matlab_and_julian_day_numbers_are_named_with_their_date(origin, shift, 
     with pytest.raises(TimestampError, match=re.escape(named) + r", not dates \('[\d.]+' is "
                        r"2021-06-01 00:30"):
         _parse([f"{d:.6f}" for d in days], "%Y%m%d%H%M")
+
+
+@pytest.mark.parametrize("change", ["removed", "added"])
+def test_a_column_changed_mid_file_without_a_new_header_is_named(tmp_path, change):
+    """A logger program that removes or adds a column mid-file and writes no new header
+    line leaves every later line one field short or long (RFC 4180 (m): each line should
+    hold the same number of fields as the header). It was refused at the first such line
+    as "a record cut short may hold a value cut mid-number; 4320 such line(s)" or "a
+    delimiter inside a value, or two records run together"; now the run of lines to the
+    end and the split are named. A single long or short line keeps its message."""
+    starts, records, ends = _year(tmp_path, days=90)
+    path = _write(tmp_path / "a.csv", records, ends)
+    lines = path.read_text().splitlines()
+    for i in range(2161, len(lines)):
+        fields = lines[i].split(",")
+        if change == "removed":
+            del fields[3]
+        else:
+            fields.insert(3, "7.5")
+        lines[i] = ",".join(fields)
+    path.write_text("\n".join(lines) + "\n")
+    with pytest.raises(InputFileError, match=re.escape(
+            f"every line from line 2162 on ({len(lines) - 2161} lines) has "
+            f"{8 if change == 'added' else 6} fields where the header has 7: a logger program "
+            f"that {change} a column and wrote no new header line? Split the file at line "
+            "2162")):
+        _read(path)
+    one = path.read_text().splitlines()[:2162] + _write(
+        tmp_path / "b.csv", records, ends).read_text().splitlines()[2162:]
+    path.write_text("\n".join(one) + "\n")
+    with pytest.raises(InputFileError) as caught:
+        _read(path)
+    assert "line 2162" in str(caught.value) and "every line from" not in str(caught.value)
