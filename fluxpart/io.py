@@ -1759,8 +1759,8 @@ def _changed_layout(path: Path, text_lines: list, line: int, width: int,
     if len(rest) < _CHANGED_LAYOUT_LINES:
         return ""
     counts = {_field_count(candidate, delimiter) for candidate in rest}
-    if len(counts) != 1 or width in counts:
-        return ""
+    if len(counts) != 1 or width in counts or min(counts) < 2:
+        return ""       # mixed counts, or lines of one field (a footer or notes block)
     fields = counts.pop()
     what = "added" if fields > width else "removed"
     return (f"input file {str(path)!r}: every line from line {line} on ({len(rest)} lines) "
@@ -2220,7 +2220,7 @@ def _other_interval(without: list, having: list) -> str:
     """Where a file of `without` holds records at another typical step than the files of
     `having` together (an hourly meteorological file whose stamps are every other one of
     half-hourly flux files), e.g. ``"with records every 60 minutes in 'met.csv', where
-    'flux.csv' holds them every 30 minutes"``; else ''. Called for files of one period
+    'flux.csv' hold them every 30 minutes"``; else ''. Called for files of one period
     (:func:`_same_period`), whose stamps share a grid."""
     if not having:
         return ""
