@@ -1478,7 +1478,15 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
         if "EOF inside string" not in str(error):
             # a header line of a changed logger program holds more fields than the first
             _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
-            raise InputFileError(_parser_message(path, delimiter, str(error))) from None
+            header_line = next(iter(text.splitlines()[rows_before_header:]), "")
+            found = re.search(r"Expected (\d+) fields in line (\d+), saw", str(error))
+            # a header of one cell holding another separator is a delimiter setting's
+            # matter (_parser_message), not a layout changed mid-file
+            changed = (found and (delimiter == _WHITESPACE or delimiter in header_line)
+                       and _changed_layout(path, text.splitlines(), int(found.group(2)),
+                                           int(found.group(1)), delimiter))
+            raise InputFileError(changed or _parser_message(path, delimiter, str(error),
+                                                            header_line)) from None
         # a quote opened and never closed: the parser names no line of the file
         text_lines = text.splitlines()
         number = _unclosed_quote_line(parsed.splitlines())
@@ -1685,9 +1693,19 @@ def _blank_rows(raw: pd.DataFrame) -> np.ndarray:
     return blank
 
 
-def _parser_message(path: Path, delimiter: str, error: str) -> str:
-    """The tokenizer's complaint as one plain line naming the file and line."""
+def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "") -> str:
+    """The tokenizer's complaint as one plain line naming the file and line.
+
+    A header line without `delimiter` that holds another separator is a file of another
+    delimiter whose data lines split at decimal commas, as many fields as each line's
+    values hold commas (a line with a missing code holds fewer than the next one)."""
     found = re.search(r"Expected (\d+) fields in line (\d+), saw (\d+)", error)
+    separator = next((c for c in (";", "\t", "|") if c in header_line), None)
+    if (separator and delimiter not in (_WHITESPACE, separator)
+            and delimiter not in header_line):
+        return (f"input file {str(path)!r}: the header is one cell holding "
+                f"{setting_text(separator)} and the data lines split at their commas: set "
+                f"[input] delimiter = {setting_text(separator)}")
     if found:
         expected, line, saw = found.groups()
         return (f"input file {str(path)!r}: line {line} has {saw} fields where the header has "
@@ -1726,6 +1744,32 @@ def _field_count(line: str, delimiter: str) -> int:
     return len(next(csv.reader([line], delimiter=delimiter), []))
 
 
+#: Lines from which on every line has another field count than the header before that is
+#: taken for a logger program changed without a new header line, not for records cut
+#: short; our choice (a day of hourly records), far more than a few interrupted writes.
+_CHANGED_LAYOUT_LINES = 24
+
+
+def _changed_layout(path: Path, text_lines: list, line: int, width: int,
+                    delimiter: str) -> str:
+    """The refusal where every non-blank line from `line` (1-based) to the end has one
+    field count other than the header's `width` (a logger program that added or removed
+    a column and wrote no new header line), else ''."""
+    rest = [candidate for candidate in text_lines[line - 1:] if candidate.strip()]
+    if len(rest) < _CHANGED_LAYOUT_LINES:
+        return ""
+    counts = {_field_count(candidate, delimiter) for candidate in rest}
+    if len(counts) != 1 or width in counts or min(counts) < 2:
+        return ""       # mixed counts, or lines of one field (a footer or notes block)
+    fields = counts.pop()
+    what = "added" if fields > width else "removed"
+    return (f"input file {str(path)!r}: every line from line {line} on ({len(rest)} lines) "
+            f"has {fields} fields where the header has {width}: a logger program that "
+            f"{what} a column and wrote no new header line? Split the file at line {line} in "
+            "a copy, give the part from there its own header line, and list both parts in "
+            "[input] path")
+
+
 def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndarray,
                         delimiter: str, warnings, named: int | None = None
                         ) -> tuple[pd.DataFrame, np.ndarray]:
@@ -1748,6 +1792,9 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
     inner = [row for row in short if row != last]
     if inner:
         row = inner[0]
+        changed = _changed_layout(path, text_lines, int(lines[row]), width, delimiter)
+        if changed:
+            raise InputFileError(changed)
         raise InputFileError(
             f"input file {str(path)!r}: line {int(lines[row])} "
             f"({_shown_line(text_lines[lines[row] - 1])!r}) has "
@@ -2074,6 +2121,16 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                                   not in part["lacking"]]):
             # files of one period holding different columns (a flux logger and a
             # meteorological one): the rows of a stamp complete each other
+            other_step = _other_interval(without, [part for part in parts if (
+                name, column) not in part["lacking"]])
+            if other_step:
+                raise MissingColumnError(
+                    f"{found}, which covers the same period {other_step}: files of one "
+                    "period holding different columns (a flux and a meteorological "
+                    "logger?) are joined by stamp, which needs the same record interval in "
+                    "each (joined as they are, the records of one file would lack the "
+                    "other's variables); bring the files to one record interval in a copy (average "
+                    "the shorter records to the longer interval)")
             joined.setdefault(lacks, []).append(name)
             continue
         renamed = ("if one of them is the same quantity renamed, give it the same name in "
@@ -2147,6 +2204,33 @@ def _same_span_other_stamps(without: list, having: list) -> str:
         if within >= 0.25 * len(stamps):
             step = float(np.median(np.diff(stamps.to_numpy())) / np.timedelta64(1, "m"))
             return f"every {step:g} minutes from {stamps.min()} in {part['source']!r}"
+    return ""
+
+
+def _median_step(stamps) -> float | None:
+    """The typical step [minutes] between the sorted distinct `stamps`, or None for
+    fewer than two."""
+    values = np.unique(np.asarray(stamps, dtype="datetime64[s]"))
+    if values.size < 2:
+        return None
+    return float(np.median(np.diff(values)) / np.timedelta64(1, "m"))
+
+
+def _other_interval(without: list, having: list) -> str:
+    """Where a file of `without` holds records at another typical step than the files of
+    `having` together (an hourly meteorological file whose stamps are every other one of
+    half-hourly flux files), e.g. ``"with records every 60 minutes in 'met.csv', where
+    'flux.csv' hold them every 30 minutes"``; else ''. Called for files of one period
+    (:func:`_same_period`), whose stamps share a grid."""
+    if not having:
+        return ""
+    others = _median_step(np.concatenate([part["stamps"].to_numpy() for part in having]))
+    for part in without:
+        own = _median_step(part["stamps"].to_numpy())
+        if own is not None and others is not None and abs(own - others) > 0.5:
+            return (f"with records every {own:g} minutes in {part['source']!r}, where "
+                    f"{_file_list([other['source'] for other in having])} hold them every "
+                    f"{others:g} minutes")
     return ""
 
 

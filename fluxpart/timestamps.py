@@ -356,10 +356,18 @@ def _hour_24(text: pd.Series, failed: np.ndarray, time_format: str
 #: Numeric clocks users export instead of dates: name, unit in seconds, epoch, plausible
 #: range of values (stamps of 1971-2100), how a spreadsheet or a logger writes them.
 _NUMERIC_CLOCKS = (
-    ("seconds since 1970-01-01 UTC (Unix time)", 1.0, "1970-01-01", (3.2e7, 4.11e9)),
-    ("milliseconds since 1970-01-01 UTC (Unix time)", 1e-3, "1970-01-01", (3.2e10, 4.11e12)),
+    ("seconds since 1970-01-01 UTC (Unix time)", 1.0, "1970-01-01", (3.2e7, 4.11e9), 0.0),
+    ("milliseconds since 1970-01-01 UTC (Unix time)", 1e-3, "1970-01-01", (3.2e10, 4.11e12),
+     0.0),
     ("spreadsheet day numbers (days since 1899-12-30, as Excel and LibreOffice count)",
-     86400.0, "1899-12-30", (26000.0, 73051.0)),
+     86400.0, "1899-12-30", (26000.0, 73051.0), 0.0),
+    # MATLAB's datenum counts days from year 0 (719529 is 1970-01-01, MATLAB
+    # documentation of datenum (m)); astronomers' Julian dates count days from noon UT
+    # of 1 January 4713 BC (2440587.5 is 1970-01-01 00:00 UT, Meeus 1998 (m))
+    ("MATLAB day numbers (datenum, days since year 0)", 86400.0, "1970-01-01",
+     (700000.0, 767000.0), 719529.0),
+    ("Julian dates (days since noon UTC of 1 January 4713 BC)", 86400.0, "1970-01-01",
+     (2.42e6, 2.49e6), 2440587.5),
 )
 
 
@@ -375,13 +383,14 @@ def _numeric_clock(text: pd.Series) -> str:
     if numbers.size < 3 or not np.isfinite(numbers).all():
         return ""
     step = np.median(np.diff(numbers))
-    for name, seconds, epoch, (low, high) in _NUMERIC_CLOCKS:
+    for name, seconds, epoch, (low, high), shift in _NUMERIC_CLOCKS:
         if not (low <= numbers.min() and numbers.max() <= high):
             continue
         minutes = step * seconds / 60.0
         if not any(abs(minutes - m) < 0.01 for m in (30.0, 60.0)):
             continue
-        first = pd.Timestamp(epoch) + pd.Timedelta(seconds=float(numbers[0]) * seconds)
+        first = pd.Timestamp(epoch) + pd.Timedelta(seconds=(float(numbers[0]) - shift)
+                                                   * seconds)
         zone = " UTC" if "UTC" in name else ""
         return (f"the stamps are {name}, not dates ({text.iloc[0].strip()!r} is "
                 f"{first.round('min'):%Y-%m-%d %H:%M}{zone}), which fluxpart does not read: "
@@ -402,6 +411,33 @@ def _date_part(time_format: str) -> str | None:
     if re.search(r"%[HIMSpzZf]", date) or "%d" not in date and "%j" not in date:
         return None
     return date
+
+
+def _finer_stamp(stamp: str, time_format: str) -> str:
+    """A hint where `stamp` carries seconds or fractions of a second that `time_format`
+    lacks ("2021-06-01 13:30:00.000" under "%Y-%m-%d %H:%M:%S", as databases and many
+    loggers write them), or is an ISO 8601 ordinal date ("2021-152T13:30", year and day
+    of year, ISO 8601:2004 section 4.1.2.3 (m)) under "ISO8601", which the parser behind
+    that setting does not read; else ''."""
+    text = stamp.strip()
+    candidates = []
+    if time_format.upper() == "ISO8601":
+        candidates = ["%Y-%jT%H:%M", "%Y-%jT%H:%M:%S", "%Y-%j %H:%M", "%Y-%j %H:%M:%S"]
+    elif time_format.endswith("%S"):
+        candidates = [time_format + ".%f", time_format + ",%f"]
+    elif time_format.endswith("%M"):
+        candidates = [time_format + ":%S", time_format + ":%S.%f"]
+    for candidate in candidates:
+        try:
+            datetime.strptime(text, candidate)
+        except ValueError:
+            continue
+        what = ("an ISO 8601 ordinal date (year and day of year)"
+                if "%j" in candidate and "%j" not in time_format
+                else "fractions of a second" if candidate.endswith("%f")
+                else "seconds")
+        return f"the stamps carry {what}: set time_format = {setting_text(candidate)}"
+    return ""
 
 
 def _other_format(stamp: str, time_format: str) -> str:
@@ -634,6 +670,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "and with [input] time_zone = \"Area/City\"")
         elif _numeric_clock(text):
             hint = "; " + _numeric_clock(text)
+        elif _finer_stamp(text.iloc[first], time_format):
+            hint = "; " + _finer_stamp(text.iloc[first], time_format)
         elif _fraction_hint(text[failed], time_format):
             hint = "; " + _fraction_hint(text[failed], time_format)
         elif _other_format(text.iloc[first], time_format):
@@ -810,6 +848,16 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
                     "(00:00 after 23:30 of the same date): write midnight as 24:00 of that "
                     "day or as 00:00 of the next day in a copy of the file (sorting would "
                     "place each such record a day early)")
+        elif (time_zone is not None and -float(steps[row - 1]) <= 3600.0
+              and stamps[row].month in (3, 4, 9, 10, 11)):
+            # the autumn hour that civil time repeats is resolved by record order (its
+            # first records daylight-saving time); a file sorted by civil stamp interleaves
+            # the two hours, which sorting again cannot undo
+            hint = ("in civil time of [input] time_zone the autumn hour repeats and is read "
+                    "by record order (its first records daylight-saving time, the next "
+                    "standard time); the file seems sorted by civil stamp, which interleaves "
+                    "the two hours: put that hour's daylight-saving records before its "
+                    "standard-time ones, as the logger wrote them, in a copy of the file")
         else:
             hint = "sort a copy of the file by time"
         raise NonMonotonicTimestampError(
@@ -933,6 +981,7 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
     """
     describe = describe or (lambda position: f"record {position + 1}")
     steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(minutes=1), dtype=float)
+    setting = declared is not None
     if declared is None:
         if steps.size == 0:
             raise SpacingError("the file has a single record, so its interval cannot be "
@@ -955,11 +1004,21 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
         if seconds:
             raise SpacingError(seconds)
         found = sorted({f"{s:g}" for s in steps[irregular][:10]})
+        # most steps off a declared interval: the setting, not the file, is at odds
+        values, counts = np.unique(steps, return_counts=True)
+        typical = float(values[np.argmax(counts)])
+        fix = (f"set interval_minutes = {typical:g}, or remove it to have the interval "
+               "read from the stamps" if typical in INTERVALS_MINUTES else
+               "fluxpart needs 30- or 60-minute records: average the file to 30 or 60 "
+               "minutes first")
+        mismatch = (f"; [input] interval_minutes = {declared} is set, while most stamps are "
+                    f"{typical:g} minutes apart: {fix}"
+                    if setting and 2 * irregular.size >= steps.size else "")
         raise SpacingError(
             f"stamps are {steps[irregular[0]]:g} minutes apart at {describe(row)} "
             f"({stamps[row - 1]} -> {stamps[row]}), not a whole multiple of the "
             f"{declared}-minute interval; {irregular.size} such step(s), spacings found: "
-            f"{', '.join(found)} minutes")
+            f"{', '.join(found)} minutes{mismatch}")
     return int(declared)
 
 

@@ -34,6 +34,7 @@ from .variables import (
     PER_INTERVAL_UNITS,
     PPFD_PER_RG,
     READER_VARIABLES,
+    reads_as_canonical,
     saturation_vapour_pressure,
     to_canonical,
     units_for,
@@ -190,7 +191,7 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
     median = float(np.median(present))
     share = outside.mean()
     median_outside = bool(_outside(name, np.array([median]))[0])
-    fraction_rh = name == "rh" and unit in (None, "%") and _rh_fraction(present)
+    fraction_rh = name == "rh" and reads_as_canonical("rh", unit) and _rh_fraction(present)
     mostly_outside = share > IMPLAUSIBLE_SHARE and outside.sum() >= _IMPLAUSIBLE_MIN_COUNT
     if fraction_rh:
         return (f"column {column!r} (rh, read as '%'): all {present.size} values are at most "
@@ -280,7 +281,7 @@ def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: 
                  potential=None):
     """NEE in mg CO2 m-2 s-1 read as µmol m-2 s-1 (values 22.7 times too small)."""
     nee = converted.get("nee")
-    if nee is None or units.get("nee") not in (None, "µmol m-2 s-1", "umol m-2 s-1"):
+    if nee is None or not reads_as_canonical("nee", units.get("nee")):
         return None, None
     present = np.abs(nee[np.isfinite(nee)])
     if present.size < 48:
@@ -633,7 +634,7 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
     tair = converted.get("tair")
     if tair is not None and units.get("tair") in ("°F", "degF"):
         return _declared_fahrenheit("tair", converted, columns, interval_minutes)
-    if tair is None or units.get("tair") not in (None, "°C", "degC"):
+    if tair is None or not reads_as_canonical("tair", units.get("tair")):
         return None
     per_block = int(30 * 1440 // interval_minutes)
     blocks = tair.size // per_block
@@ -663,7 +664,7 @@ def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes
     tsoil, tair = converted.get("tsoil"), converted.get("tair")
     if tsoil is not None and tair is not None and units.get("tsoil") in ("°F", "degF"):
         return _declared_fahrenheit("tsoil", converted, columns, interval_minutes)
-    if tsoil is None or tair is None or units.get("tsoil") not in (None, "°C", "degC"):
+    if tsoil is None or tair is None or not reads_as_canonical("tsoil", units.get("tsoil")):
         return None
     both = np.isfinite(tsoil) & np.isfinite(tair)
     if not _enough_days(int(both.sum()), interval_minutes):
@@ -738,7 +739,7 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
                 potential):
     """Rg in kW m-2 or in MJ m-2 per interval read as W m-2, or net radiation mapped as Rg."""
     rg = converted.get("rg")
-    if rg is None or potential is None or units.get("rg") not in (None, "W m-2", "W/m2"):
+    if rg is None or potential is None or not reads_as_canonical("rg", units.get("rg")):
         return None
     dark = (np.asarray(potential) <= 0.0) & np.isfinite(rg)
     if dark.sum() >= _MIN_ACTIVE_RECORDS and np.median(rg[dark]) < _NIGHT_RG_FLOOR:
@@ -819,7 +820,7 @@ def _too_dark_message(name: str, converted: dict, units: dict, columns: dict,
     """
     values = converted.get(name)
     if (values is None or potential is None or (name == "ppfd" and "rg" in converted)
-            or (name == "rg" and units.get("rg") not in (None, "W m-2", "W/m2"))):
+            or (name == "rg" and not reads_as_canonical("rg", units.get("rg")))):
         return None, None
     high = (np.asarray(potential) > 600.0) & np.isfinite(values)
     if high.sum() < _MIN_ACTIVE_RECORDS:
@@ -943,6 +944,13 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
             refuse_soil = _tsoil_message(converted, units, columns, interval_minutes)
             if refuse_soil:
                 refusals["tsoil"] = refuse_soil
+            elif "tsoil" in columns:
+                # a month of soil in °F (a logger program changed for a while): the
+                # whole record's median hides it, the month's alone does not
+                warnings += _changed_within(
+                    lambda part, sun: _tsoil_message(part, units, columns, interval_minutes),
+                    "tsoil", columns, "a soil temperature in °F or K (a median above 25 °C "
+                    "and more than 15 K above the air's)", converted, potential, stamps)
             refuse, warn = _vpd_messages(converted, units, columns, interval_minutes)
             if refuse:
                 refusals["vpd"] = refuse
@@ -956,7 +964,7 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                     "vpd", columns, "VPD in another unit (a tenth or ten times the VPD "
                     "that tair and the humidity allow)", converted, potential, stamps)
         rh = converted.get("rh")
-        if rh is not None and units.get("rh") in (None, "%") and not _rh_fraction(rh):
+        if rh is not None and reads_as_canonical("rh", units.get("rh")) and not _rh_fraction(rh):
             warnings += _changed_within(
                 lambda part, sun: _rh_fraction(part["rh"]), "rh", columns,
                 "a fraction (all at most 1.05 %, which no surface air stays below for a "

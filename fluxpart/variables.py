@@ -8,6 +8,7 @@ relative humidity and air temperature by :func:`vpd_from_rh`.
 
 from __future__ import annotations
 
+import re
 import unicodedata
 from dataclasses import dataclass
 
@@ -23,6 +24,7 @@ __all__ = [
     "REQUIRED",
     "VARIABLES",
     "Variable",
+    "reads_as_canonical",
     "saturation_vapour_pressure",
     "to_canonical",
     "unit_spelling",
@@ -147,6 +149,24 @@ def units_for(name: str) -> tuple[str, ...]:
     return tuple(_CONVERSIONS[name])
 
 
+def reads_as_canonical(name: str, unit: str | None) -> bool:
+    """Whether `unit` (``None``: none declared) is a spelling of the canonical unit of
+    `name`, whose values the reader keeps as written (scale 1, offset 0, a rate).
+
+    Checks that judge values "read as" the canonical unit apply to every such spelling:
+    ``"C"``, ``"degC"`` and ``"°C"`` alike, ``"W/m2"`` as ``"W m-2"``.
+
+    Examples
+    --------
+    >>> reads_as_canonical("tair", "C"), reads_as_canonical("tair", "K")
+    (True, False)
+    """
+    if unit is None:
+        return True
+    return (_CONVERSIONS.get(name, {}).get(unit) == (1.0, 0.0)
+            and (name, unit) not in PER_INTERVAL_UNITS)
+
+
 #: Characters typed for the degree sign: the masculine ordinal (Spanish and Portuguese
 #: keyboards), the ring above and the superscript zero.
 _DEGREE_LOOK_ALIKES = str.maketrans({"\u00ba": "\u00b0", "\u02da": "\u00b0",
@@ -161,14 +181,40 @@ def _folded(unit: str) -> str:
         "\u2212", "-")
 
 
+#: A degree word for a temperature scale: "deg C", "Deg C", "degrees C", "Celsius".
+_DEGREE_WORD = re.compile(r"^(?:[Dd]eg(?:rees?)?\.?\s*([CF])|(Celsius|Fahrenheit))$",
+                          re.IGNORECASE)
+#: A divisor written with a solidus: "/m2", "/s", "/ m^2".
+_SOLIDUS = re.compile(r"\s*/\s*([A-Za-z]+)(\d?)")
+
+
+def _notation(unit: str) -> str:
+    """`unit` in one notation: exponents with a caret (``m^-2``) written ``m-2``, divisors
+    with a solidus (``/m2/s``) as negative exponents (``m-2 s-1``), the species of a
+    molar flux dropped (``µmol CO2 m-2 s-1``: moles of CO2 are the unit's own), and a
+    degree word (``deg C``, ``Deg C``, ``Celsius``) as the degree sign. These are the
+    notations of logger units lines and of the SI brochure (BIPM 2019, section 5.4.6:
+    ``m/s``, ``m s-1`` and ``m·s⁻¹`` write one unit (m))."""
+    text = unit.strip()
+    degree = _DEGREE_WORD.match(text)
+    if degree:
+        letter = (degree.group(1) or degree.group(2)[0]).upper()
+        return "\u00b0" + letter
+    text = text.replace("^", "").replace("\u00b7", " ").replace("\u22c5", " ")
+    text = re.sub(r"(mol)\s+CO2\b", r"\1", text)
+    text = _SOLIDUS.sub(lambda match: f" {match.group(1)}-{match.group(2) or '1'}", text)
+    return " ".join(text.split())
+
+
 def unit_spelling(name: str, unit: str) -> str:
     """The accepted spelling of `unit` for variable `name`, where they differ only in
-    look-alike characters; else `unit` unchanged.
+    look-alike characters or notation; else `unit` unchanged.
 
     A unit copied from a file header or a paper is often typed with the Greek mu (U+03BC)
     for the micro sign (U+00B5), which a font shows alike, with superscripts ("W m⁻²"),
     or with the masculine ordinal (U+00BA) for the degree sign ("ºC"); each names the
-    same unit.
+    same unit. So do the notations :func:`_notation` folds ("umol/m^2/s", "W/m^2",
+    "Deg C", "µmol CO2 m-2 s-1").
 
     Examples
     --------
@@ -181,6 +227,9 @@ def unit_spelling(name: str, unit: str) -> str:
     if not isinstance(unit, str) or unit in table:
         return unit
     same = [spelling for spelling in table if _folded(spelling) == _folded(unit)]
+    if not same:
+        same = [spelling for spelling in table
+                if _notation(_folded(spelling)) == _notation(_folded(unit))]
     return same[0] if same else unit
 
 

@@ -525,9 +525,12 @@ def test_met_file_of_another_interval_beside_a_flux_file_is_named(tmp_path):
     fine = pd.date_range(starts[0], periods=480 * 3, freq="10min")
     met = _write(tmp_path / "met.csv", _records(fine)[["sw_in", "t_air", "vpd_air"]],
                  (fine + pd.Timedelta(minutes=10)).strftime("%Y-%m-%d %H:%M"))
-    with pytest.raises(MissingColumnError, match=r"which covers the same period with stamps "
-                       r"of its own \(every 10 minutes from .*met\.csv'\).*needs the same "
-                       r"record interval") as caught:
+    # since layouts17 the join names both files' intervals ("... met.csv' hold them every
+    # 10 minutes"), as for an hourly met file beside half-hourly flux files
+    with pytest.raises(MissingColumnError, match=r"which covers the same period with (stamps "
+                       r"of its own \(every 10 minutes from .*met\.csv'\)|records every 30 "
+                       r"minutes in .*flux\.csv', where .*met\.csv' hold them every 10 "
+                       r"minutes).*needs the same record interval") as caught:
         _read([flux, met])
     assert "empty cells" not in str(caught.value)
 
