@@ -103,6 +103,22 @@ def test_day_first_dates_with_one_bad_stamp_get_no_exchange_hint():
     assert "exchanged" not in str(caught.value)
 
 
+def test_one_damaged_stamp_that_reads_exchanged_gets_no_exchange_hint():
+    """Behaviour check (review round eighteen): a year of year-first stamps with one
+    damaged month ("2021-13-01", which reads as 13 January with day and month exchanged)
+    was told to write time_format = "%Y-%d-%m %H:%M", a format under which every stamp
+    after the 12th of a month fails (Gregorian calendar: no month 13). The stamps that
+    parse read only as they are, so the hint is left out."""
+    stamps = pd.date_range("2021-01-01 00:30", "2021-03-01 00:00", freq="30min")
+    text = list(stamps.strftime("%Y-%m-%d %H:%M"))
+    text[1000] = "2021-13-01 01:00"
+    with pytest.raises(TimestampError) as caught:
+        _parse(text, "%Y-%m-%d %H:%M")
+    message = str(caught.value)
+    assert "'2021-13-01 01:00'" in message and "line 1002" in message
+    assert "exchanged" not in message
+
+
 @pytest.mark.parametrize("cell", ["-9999", "", " ", "0"])
 def test_a_record_without_a_stamp_is_not_called_a_utc_offset(cell):
     """A missing code or an empty cell in the time column: "-9999" ends like an ISO 8601
