@@ -33,45 +33,6 @@ __all__ = ["main"]
 _GC_THRESHOLDS = (50_000, 20, 20)
 
 
-def _uncertainty_table(annual):
-    """The annual uncertainty parts, total and 95 % interval per year and flux [g C m-2],
-    each part as its flux's total combines it, or None without uncertainty columns."""
-    rows = []
-    nan = float("nan")
-    for year, row in annual.iterrows():
-        for flux in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
-            total = f"{flux}_uncertainty_total"
-            if total not in annual.columns:
-                continue
-            kind = flux.split("_")[0]
-            # each part as the total combines it (uncertainty.period_uncertainty): nighttime
-            # GPP takes NEE's random and gap-filling errors outside the night only, and the
-            # daytime method its own respiration-form part (it keeps Lloyd–Taylor)
-            form = ("reco_daytime_uncertainty_respiration_form" if flux.endswith("daytime")
-                    else "reco_uncertainty_respiration_form")
-            rows.append({
-                "year": year, "flux": flux,
-                "random": row.get(f"{flux}_uncertainty_random", nan)
-                if flux in ("nee", "gpp_nighttime") else nan,
-                "gap filling": row.get(f"{flux}_uncertainty_gapfill", nan)
-                if flux in ("nee", "gpp_nighttime") else nan,
-                "ustar": row.get(f"{flux}_uncertainty_ustar", nan),
-                "parameters": row.get(f"{flux}_uncertainty_parameters", nan),
-                "partitioning": row.get(f"{kind}_uncertainty_partitioning", nan)
-                if kind != "nee" else nan,
-                "temperature": row.get("reco_uncertainty_temperature_driver", nan)
-                if kind != "nee" else nan,
-                "form": row.get(form, nan) if kind != "nee" else nan,
-                "total": row[total],
-                "ci95_low": row.get(f"{flux}_ci95_low", nan),
-                "ci95_high": row.get(f"{flux}_ci95_high", nan)})
-    if not rows:
-        return None
-    import pandas as pd
-
-    return pd.DataFrame(rows).set_index(["year", "flux"])
-
-
 def _format_annual(annual) -> str:
     """The annual budget, its uncertainty budget and the carbon-accounting units, as text."""
     columns = [c for c in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime",
@@ -84,7 +45,9 @@ def _format_annual(annual) -> str:
                  f"{row['period_end'] - datetime.timedelta(days=1):%Y-%m-%d}"
                  for year, row in annual.iterrows()]
         lines.append(f"Budget years ([processing] year_start): {'; '.join(spans)}")
-    table = _uncertainty_table(annual)
+    from .uncertainty_parts import uncertainty_parts
+
+    table = uncertainty_parts(annual)
     if table is not None:
         lines += ["", "Uncertainty [g C m-2]: parts and total as 1 sigma (root sum of squares), "
                   "and the stated 95 % interval (temperature: the choice of respiration "

@@ -195,10 +195,11 @@ def test_cli_uncertainty_parts_combine_into_the_printed_total(written_demo):
     NEE's random and gap-filling parts (its own are those outside the night only) and the
     temperature-driver and respiration-form parts had no column, so the parts of a
     nighttime GPP of total 7.9 g C m-2 added up to 8.7."""
-    from fluxpart.cli import _format_annual, _uncertainty_table
+    from fluxpart.cli import _format_annual
+    from fluxpart.uncertainty_parts import uncertainty_parts
 
     result, _ = written_demo
-    table = _uncertainty_table(result.annual)
+    table = uncertainty_parts(result.annual)
     parts = table.drop(columns=["total", "ci95_low", "ci95_high"])
     combined = np.sqrt(np.square(parts).sum(axis=1, min_count=1))
     assert np.allclose(combined, table["total"], rtol=1e-9, atol=0.0)
