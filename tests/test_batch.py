@@ -800,9 +800,9 @@ def test_a_sites_warnings_are_listed_by_the_summary_not_printed_by_python(tmp_pa
     them."""
     import warnings
 
-    from fluxpart.errors import FluxpartWarning
-
     from bundles import make_bundle
+
+    from fluxpart.errors import FluxpartWarning
 
     config = make_bundle(tmp_path / "short")
     with warnings.catch_warnings(record=True) as caught:
