@@ -405,7 +405,8 @@ def _date_part(time_format: str) -> str | None:
 
 
 def _other_format(stamp: str, time_format: str) -> str:
-    """A hint where a stamp fails only for a 12-hour clock or a two-digit year, else ''."""
+    """A hint where a stamp fails only for a 12-hour clock, a two-digit year or seconds
+    written in one of stamp and format but not the other, else ''."""
     def parses(candidate):
         try:
             datetime.strptime(stamp.strip(), candidate)
@@ -419,6 +420,14 @@ def _other_format(stamp: str, time_format: str) -> str:
     if "%Y" in time_format and parses(time_format.replace("%Y", "%y")):
         return ("the year has two digits: write it as %y, time_format = "
                 f"{setting_text(time_format.replace('%Y', '%y'))}")
+    # seconds in the format but not in the stamps, or the other way round
+    if ":%S" in time_format and parses(time_format.replace(":%S", "", 1)):
+        return ("the stamps have no seconds: time_format = "
+                f"{setting_text(time_format.replace(':%S', '', 1))}")
+    if "%H:%M" in time_format and "%S" not in time_format \
+            and parses(time_format.replace("%H:%M", "%H:%M:%S", 1)):
+        return ("the stamps carry seconds: time_format = "
+                f"{setting_text(time_format.replace('%H:%M', '%H:%M:%S', 1))}")
     return ""
 
 
