@@ -292,9 +292,10 @@ def _command_check(args) -> int:
         print("\nscreening of NEE (records per first reason, before the u* filter)")
         print(counts.to_string())
         print("\nu* threshold [m s-1] (bootstrap percentiles where drawn)")
-        columns = [c for c in ("year", "period", "threshold", "threshold_p05", "threshold_p16",
-                               "threshold_p50", "threshold_p84", "threshold_p95",
-                               "night_records", "source", "reason")
+        # the months name each season: "winter" is JJA south of the equator
+        columns = [c for c in ("year", "period", "months", "threshold", "threshold_p05",
+                               "threshold_p16", "threshold_p50", "threshold_p84",
+                               "threshold_p95", "night_records", "source", "reason")
                    if c in thresholds.columns]
         print(thresholds[columns].to_string(index=False, float_format=lambda v: f"{v:.3f}"))
     else:
