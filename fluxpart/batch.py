@@ -50,6 +50,7 @@ import tempfile
 import time
 import traceback
 import uuid
+import warnings
 from collections import Counter
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -60,7 +61,7 @@ import pyarrow.parquet as pq
 
 from ._validate import read_toml
 from .config import Config, suggest_key
-from .errors import ConfigError, FluxpartError, InputFileError, OutputError
+from .errors import ConfigError, FluxpartError, FluxpartWarning, InputFileError, OutputError
 from .fingerprint import code_fingerprint
 from .manifest import (
     CAUTION,
@@ -182,6 +183,8 @@ class SiteOutcome:
         Error class, message and ``"input"`` or ``"internal"`` of a failure.
     traceback : str
         Traceback of an internal failure (a fault of fluxpart or of the cluster).
+    warnings : tuple of str
+        The run's warnings as its manifest records them (written or skipped sites).
     """
 
     key: str
@@ -195,6 +198,7 @@ class SiteOutcome:
     message: str = ""
     kind: str = ""
     traceback: str = field(default="", repr=False)
+    warnings: tuple = ()
 
 
 @dataclass(frozen=True)
@@ -433,10 +437,10 @@ def is_up_to_date(config, directory) -> bool:
     return _stale_reason(config, directory) is None
 
 
-def _annual_from(directory: Path) -> tuple[pd.DataFrame, dict]:
+def _annual_from(directory: Path) -> tuple[pd.DataFrame, dict, tuple]:
     manifest = read_manifest(directory)
     annual = read_table(directory / manifest["tables"]["annual"]["file"])
-    return annual, manifest["site"]
+    return annual, manifest["site"], tuple(manifest.get("warnings") or ())
 
 
 def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome:
@@ -468,13 +472,18 @@ def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome
     try:
         reason = "forced" if force else _stale_reason(config, directory)
         if reason is None:
-            annual, site = _annual_from(directory)
+            annual, site, notes = _annual_from(directory)
             return SiteOutcome(status="skipped", note="up to date", site=site, annual=annual,
-                               **common)
-        result = process_site_config(config)
+                               warnings=notes, **common)
+        with warnings.catch_warnings():
+            # recorded in the manifest and listed per site by the batch summary, not
+            # printed by Python's warnings module from whichever process ran the site
+            warnings.simplefilter("ignore", FluxpartWarning)
+            result = process_site_config(config)
         result.write(directory)
-        annual, site = _annual_from(directory)
-        return SiteOutcome(status="written", note=reason, site=site, annual=annual, **common)
+        annual, site, notes = _annual_from(directory)
+        return SiteOutcome(status="written", note=reason, site=site, annual=annual,
+                           warnings=notes, **common)
     except Exception as error:  # isolate every site's failure
         return _failure(common, error)
 
@@ -1119,6 +1128,8 @@ def _summary(report: BatchReport) -> str:
                       # u* thresholds in m s-1 need their three decimals (0.177, not 0.2)
                       formatters={"ustar_threshold": lambda v: f"{v:9.3f}"})]
     lines += [f"warning: {warning}" for warning in report.warnings]
+    lines += [f"warning: site {outcome.key!r}: {text}" for outcome in report.outcomes
+              for text in outcome.warnings]
     datasets = ", ".join(f"{folder}/" for folder in NETWORK_DATASETS.values())
     lines += ["", f"Wrote {report.out}/ (one result folder per site, {datasets}, "
               f"{FAILURES_FILE})", f"Caution: {CAUTION}"]

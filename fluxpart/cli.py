@@ -45,34 +45,14 @@ def _format_annual(annual) -> str:
                  f"{row['period_end'] - datetime.timedelta(days=1):%Y-%m-%d}"
                  for year, row in annual.iterrows()]
         lines.append(f"Budget years ([processing] year_start): {'; '.join(spans)}")
-    rows = []
-    nan = float("nan")
-    for year, row in annual.iterrows():
-        for flux in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
-            total = f"{flux}_uncertainty_total"
-            if total not in annual.columns:
-                continue
-            kind = flux.split("_")[0]
-            rows.append({
-                "year": year, "flux": flux,
-                "random": row.get("nee_uncertainty_random", nan)
-                if flux in ("nee", "gpp_nighttime") else nan,
-                "gap filling": row.get("nee_uncertainty_gapfill", nan)
-                if flux in ("nee", "gpp_nighttime") else nan,
-                "ustar": row.get(f"{flux}_uncertainty_ustar", nan),
-                "parameters": row.get(f"{flux}_uncertainty_parameters", nan),
-                "partitioning": row.get(f"{kind}_uncertainty_partitioning", nan)
-                if kind != "nee" else nan,
-                "total": row[total],
-                "ci95_low": row.get(f"{flux}_ci95_low", nan),
-                "ci95_high": row.get(f"{flux}_ci95_high", nan)})
-    if rows:
-        import pandas as pd
+    from .uncertainty_parts import uncertainty_parts
 
-        table = pd.DataFrame(rows).set_index(["year", "flux"])
+    table = uncertainty_parts(annual)
+    if table is not None:
         lines += ["", "Uncertainty [g C m-2]: parts and total as 1 sigma (root sum of squares), "
-                  "and the stated 95 % interval; systematic measurement errors not included "
-                  "(see the README's cautions):",
+                  "and the stated 95 % interval (temperature: the choice of respiration "
+                  "temperature; form: Lloyd–Taylor or a constant Q10); systematic measurement "
+                  "errors not included (see the README's cautions):",
                   table.to_string(float_format=lambda v: f"{v:9.1f}", na_rep="        -")]
     if "net_uptake_t_co2_per_ha" in annual.columns:
         lines += ["", "Net uptake [t CO2 ha-1 per year; positive = uptake]:"]
@@ -312,9 +292,10 @@ def _command_check(args) -> int:
         print("\nscreening of NEE (records per first reason, before the u* filter)")
         print(counts.to_string())
         print("\nu* threshold [m s-1] (bootstrap percentiles where drawn)")
-        columns = [c for c in ("year", "period", "threshold", "threshold_p05", "threshold_p16",
-                               "threshold_p50", "threshold_p84", "threshold_p95",
-                               "night_records", "source", "reason")
+        # the months name each season: "winter" is JJA south of the equator
+        columns = [c for c in ("year", "period", "months", "threshold", "threshold_p05",
+                               "threshold_p16", "threshold_p50", "threshold_p84",
+                               "threshold_p95", "night_records", "source", "reason")
                    if c in thresholds.columns]
         print(thresholds[columns].to_string(index=False, float_format=lambda v: f"{v:.3f}"))
     else:

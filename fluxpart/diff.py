@@ -136,6 +136,10 @@ def _recorded_items(first: dict, second: dict) -> list:
         items.append(("input", "demo record", _short(a_prov.get("demo")),
                       _short(b_prov.get("demo"))))
     for key, section in _SECTIONS:
+        if key == "seed" and all(isinstance(m.get("config"), dict)
+                                 and m["config"].get("seed") == m.get("seed")
+                                 for m in (first, second)):
+            continue        # the same seed as the setting's, listed there once
         for name, a, b in field_differences(first.get(key), second.get(key), ""):
             items.append((section, name or key, _short(a), _short(b)))
     for name, a, b in field_differences(a_prov.get("reader"), b_prov.get("reader"), ""):

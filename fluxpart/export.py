@@ -258,10 +258,16 @@ def to_xarray(result):
         if name.startswith("gpp"):
             mean["standard_name"] = STANDARD_NAMES["gpp"]
         variables[f"{name}_daily_mean"] = ("day", grams * 1e-3 / seconds, mean)
-        variables[f"{name}_daily_sum"] = ("day", grams, {
-            "long_name": f"daily sum of {text}; grams of carbon", "units": "g m-2",
-            "cell_methods": "day: sum"})
+        total = {"long_name": f"daily sum of {text}; grams of carbon", "units": "g m-2",
+                 "cell_methods": "day: sum"}
+        variables[f"{name}_daily_sum"] = ("day", grams, total)
         sigma = f"{name}_sigma"
+        # the sum's uncertainty and coverage travel with it (CF 1.10 §3.4 ancillary data)
+        ancillary = [f"{name}_daily_sum_sigma"] if sigma in daily.columns else []
+        if "share_measured" in daily.columns:
+            ancillary.append("share_measured_daily")
+        if ancillary:
+            total["ancillary_variables"] = " ".join(ancillary)
         if sigma in daily.columns:
             variables[f"{name}_daily_sum_sigma"] = ("day", daily[sigma].to_numpy(dtype=float), {
                 "long_name": f"one standard deviation of the daily sum of {name}; grams of carbon",

@@ -553,6 +553,21 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
     return too_calm, nee_measured, filled, night, day, errors
 
 
+def _fallback_e0_text(parameters, fell_back, e0_annual) -> str:
+    """The E0 the daytime windows without their own took (`_fit_daytime`: the median of
+    the nighttime method's per-record E0), named with each calendar year's E0 where the
+    record has several: the median of a record's records can be a value no year has."""
+    value = float(parameters.loc[fell_back.to_numpy(), "e0"].iloc[0])
+    years = e0_annual.dropna(subset=["e0"]) if "e0" in getattr(e0_annual, "columns", ()) \
+        else None
+    if years is None or len(years) < 2:
+        return f"the nighttime method's E0 ({value:.0f} K)"
+    listed = ", ".join(f"{int(year)}: {float(e0):.0f} K"
+                       for year, e0 in years["e0"].items())
+    return (f"the median over the record of the nighttime method's E0 ({value:.0f} K; "
+            f"calendar years {listed})")
+
+
 def _fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_filled, is_night,
                  config, curvature, night):
     """The daytime method with the configured settings (`night`: the nighttime result)."""
@@ -748,9 +763,10 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
             f"{int(fell_back.sum())} of {len(fell_back)} windows (pooled over the year from "
             f"windows of at least {config.e0_min_points} night records spanning "
             f"{config.e0_min_temperature_range} K within "
-            f"{max(config.daytime_e0_window_days)} days); the nighttime method's E0 "
-            f"({float(np.median(day.e0)):.0f} K) was used there, flagged 'fallback' in the "
-            "daytime parameter table, so the two methods are not independent in their E0")
+            f"{max(config.daytime_e0_window_days)} days); "
+            f"{_fallback_e0_text(day.parameters, fell_back, night.e0_annual)} was used there, "
+            "flagged 'fallback' in the daytime parameter table, so the two methods are not "
+            "independent in their E0")
     flags = screens.flags.assign(nee_low_ustar=too_calm, nee_morning_release=released)
     reason = screens.reason.to_numpy().copy()
     reason[(reason == 0) & too_calm] = _REASON_LOW_USTAR

@@ -66,6 +66,7 @@ from .resultdir import (
     swapped_in,
 )
 from .store import atomic_write_bytes
+from .uncertainty_parts import PART_LABELS, uncertainty_parts
 from .units import CARBON_UNIT, FLUX_UNIT, T_CO2_HA_PER_G_C_M2, display_unit
 
 __all__ = ["FIGURES", "build_report", "command_report", "read_written"]
@@ -245,10 +246,52 @@ def _ustar_fact(written: Written, label, row, mask) -> str:
             "filling.")
 
 
+def _uncertainty_fact(parts: pd.DataFrame | None, label) -> str:
+    """The summary's sentence on what drove a period's uncertainty, or ''.
+
+    NEE's parts in decreasing order, then for each partitioned flux its largest part,
+    each with its 1-sigma size and the flux's total, as written
+    (:func:`fluxpart.uncertainty_parts.uncertainty_parts`).
+    """
+    if parts is None or label not in parts.index.get_level_values("year"):
+        return ""
+    table = parts.xs(label, level="year")
+    names = list(PART_LABELS)
+
+    def ordered(flux):
+        values = table.loc[flux, names].astype(float).dropna()
+        return values[values > 0].sort_values(ascending=False, kind="stable")
+
+    sentences = []
+    if "nee" in table.index and _finite(table.loc["nee", "total"]):
+        nee = ordered("nee")
+        listed = ", ".join(f"{PART_LABELS[name]} {value:.1f}" for name, value in nee.items())
+        sentences.append(f"NEE ± {float(table.loc['nee', 'total']):.1f} {_CARBON_UNIT} "
+                         f"(1 sigma){': ' + listed if listed else ''}.")
+    largest = []
+    for flux in ("gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
+        if flux not in table.index or not _finite(table.loc[flux, "total"]):
+            continue
+        values = ordered(flux)
+        if len(values):
+            kind, method = flux.split("_")
+            largest.append(f"{'GPP' if kind == 'gpp' else 'Reco'} {method} "
+                           f"{values.iloc[0]:.1f} of {float(table.loc[flux, 'total']):.1f} "
+                           f"({PART_LABELS[values.index[0]]})")
+    if largest:
+        sentences.append("Largest part of each partitioned flux (1 sigma, "
+                         f"{_CARBON_UNIT}): {'; '.join(largest)}.")
+    if sentences:
+        sentences.append("Systematic measurement errors are not among them (see the note "
+                         "below the cards).")
+    return _e(" ".join(sentences))
+
+
 def _summary_card(written: Written) -> tuple[str, bool]:
     """The summary per budget period; also whether a combined (non-95 %) uncertainty is shown."""
     annual = written.annual
     periods = period_masks(written)
+    uncertainty_table = uncertainty_parts(annual)
     cards, combined_used = [], False
     # a method that could not fit (fluxpart.method_failure): said so, not shown as numbers
     unfitted = "".join(
@@ -319,6 +362,9 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                          + (f"; {100 * float(row['nee_share_from_filled']):.0f} % of the sum of "
                             "|NEE| comes from filled records"
                             if _finite(row.get("nee_share_from_filled")) else "") + ".</li>")
+        drivers = _uncertainty_fact(uncertainty_table, label)
+        if drivers:
+            facts.append(f"<li><strong>What the uncertainty comes from:</strong> {drivers}</li>")
         if "ustar_threshold" in row.index:
             facts.append("<li><strong>u* threshold:</strong> "
                          f"{_ustar_fact(written, label, row, periods[label][3])}</li>")

@@ -441,7 +441,8 @@ def _finer_stamp(stamp: str, time_format: str) -> str:
 
 
 def _other_format(stamp: str, time_format: str) -> str:
-    """A hint where a stamp fails only for a 12-hour clock or a two-digit year, else ''."""
+    """A hint where a stamp fails only for a 12-hour clock, a two-digit year or seconds
+    written in one of stamp and format but not the other, else ''."""
     def parses(candidate):
         try:
             datetime.strptime(stamp.strip(), candidate)
@@ -455,6 +456,14 @@ def _other_format(stamp: str, time_format: str) -> str:
     if "%Y" in time_format and parses(time_format.replace("%Y", "%y")):
         return ("the year has two digits: write it as %y, time_format = "
                 f"{setting_text(time_format.replace('%Y', '%y'))}")
+    # seconds in the format but not in the stamps, or the other way round
+    if ":%S" in time_format and parses(time_format.replace(":%S", "", 1)):
+        return ("the stamps have no seconds: time_format = "
+                f"{setting_text(time_format.replace(':%S', '', 1))}")
+    if "%H:%M" in time_format and "%S" not in time_format \
+            and parses(time_format.replace("%H:%M", "%H:%M:%S", 1)):
+        return ("the stamps carry seconds: time_format = "
+                f"{setting_text(time_format.replace('%H:%M', '%H:%M:%S', 1))}")
     return ""
 
 
@@ -471,15 +480,22 @@ def _foreign_month(stamp: str) -> str:
     return ""
 
 
-def _swapped_day_month(failed: pd.Series, time_format: str) -> str:
-    """A hint where every failed stamp parses with %d and %m exchanged, else ''.
+def _swapped_day_month(failed: pd.Series, time_format: str,
+                       passed: pd.Series | None = None) -> str:
+    """A hint where every stamp parses with %d and %m exchanged, else ''.
 
     Stamps of month-first dates (06/13/2021) read under a day-first format parse up to
-    the 12th of each month, as the wrong dates, and fail from the 13th on.
+    the 12th of each month, as the wrong dates, and fail from the 13th on; the stamps
+    that `passed` then parse with the exchanged format too (day and month both at most
+    12). A day-first file with one damaged stamp ("2021-13-01" among "2021-01-13") has
+    stamps that parse only as they are, and gets no hint.
     """
     if "%d" not in time_format or "%m" not in time_format:
         return ""
     swapped = (time_format.replace("%d", "\0").replace("%m", "%d").replace("\0", "%m"))
+    if passed is not None and len(passed) and pd.to_datetime(
+            passed, format=swapped, errors="coerce").isna().any():
+        return ""
     if pd.to_datetime(failed, format=swapped, errors="coerce").notna().all():
         return ("the day and the month are exchanged (the stamps that parse up to there "
                 "were read as wrong dates): write time_format = "
@@ -655,8 +671,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = (f"; {_foreign_month(text.iloc[first])!r} is no English month "
                     "abbreviation, the only names %b reads: write the months as numbers "
                     "(%m) in a copy of the file")
-        elif _swapped_day_month(text[failed], time_format):
-            hint = "; " + _swapped_day_month(text[failed], time_format)
+        elif _swapped_day_month(text[failed], time_format, text[~failed]):
+            hint = "; " + _swapped_day_month(text[failed], time_format, text[~failed])
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
         elif "%Z" in time_format and re.search(r"\s[A-Za-z]{2,6}$", text.iloc[first]):

@@ -558,6 +558,25 @@ def _text(value) -> str:
     return text if len(text) <= 200 else text[:197] + "..."
 
 
+def _texts(stored, recomputed) -> tuple[str, str]:
+    """Both values as :func:`_text` shows them, each cut to begin shortly before the
+    first character where they differ when a long common beginning would otherwise fill
+    the 200 characters shown (a warning reworded in its second half showed as two equal
+    prefixes)."""
+    if "(absent)" in (stored, recomputed):
+        return _text(stored), _text(recomputed)
+    full = [json.dumps(v, sort_keys=True, ensure_ascii=False) for v in (stored, recomputed)]
+    if all(len(t) <= 200 for t in full):
+        return full[0], full[1]
+    same = len(os.path.commonprefix(full))
+    start = same - 40 if same > 80 else 0
+    shown = []
+    for text in full:
+        text = ("..." if start else "") + text[start:]
+        shown.append(text if len(text) <= 200 else text[:197] + "...")
+    return shown[0], shown[1]
+
+
 def _float_relative(a, b) -> float:
     """Relative difference of two manifest numbers of which one at least is a float (the
     model-choice criteria and weights of ``provenance``); NaN for anything else. A sum of
@@ -597,10 +616,12 @@ def _compare_manifests(stored: dict, recomputed: dict) -> list:
     out = [Difference("manifest", "rounding", column=name, stored=_text(a), recomputed=_text(b),
                       relative=relative)
            for name, a, b, relative in rounding if relative <= ROUNDING_TOLERANCE]
+    shown = {name: _texts(a, b) for name, a, b, _ in rounding}
     pairs = [(name, a, b) for name, a, b, relative in rounding
              if not relative <= ROUNDING_TOLERANCE]
-    out += [Difference("manifest", "manifest", column=name, stored=_text(a), recomputed=_text(b))
-            for name, a, b in pairs[:_MAX_FIELDS_LISTED]]
+    out += [Difference("manifest", "manifest", column=name, stored=shown[name][0],
+                       recomputed=shown[name][1])
+            for name, _, _ in pairs[:_MAX_FIELDS_LISTED]]
     if len(pairs) > _MAX_FIELDS_LISTED:
         rest = [name for name, _, _ in pairs[_MAX_FIELDS_LISTED:]]
         out.append(Difference("manifest", "more", stored=", ".join(rest), count=len(rest)))

@@ -789,3 +789,34 @@ def test_a_batch_output_folder_given_as_a_result_folder_says_what_to_give(tmp_pa
     (tmp_path / batch.NETWORK_SEAL).unlink()
     with pytest.raises(InputFileError, match=r"not a fluxpart result folder$"):
         fluxpart.load(tmp_path)
+
+
+def test_a_sites_warnings_are_listed_by_the_summary_not_printed_by_python(tmp_path):
+    """Behaviour check (review round eighteen): a site's warnings (here a 30-day record,
+    a partial year) reached the batch user only as Python's warning line with a source
+    file and line of fluxpart ("pipeline.py:1154: FluxpartWarning: ... return
+    process(...)"), and the summary named none. The task now keeps them out of Python's
+    warnings module and the summary lists each, naming the site, as the manifest records
+    them."""
+    import warnings
+
+    from bundles import make_bundle
+
+    from fluxpart.errors import FluxpartWarning
+
+    config = make_bundle(tmp_path / "short")
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        outcome = batch.run_site("short", config, tmp_path / "out" / "short")
+    assert outcome.status == "written"
+    assert not [w for w in caught if issubclass(w.category, FluxpartWarning)]
+    manifest = json.loads((tmp_path / "out" / "short" / "manifest.json").read_text())
+    assert outcome.warnings and outcome.warnings == tuple(manifest["warnings"])
+    assert any("partial year" in text for text in outcome.warnings)
+    report = batch.BatchReport(out=tmp_path / "out", outcomes=(outcome,),
+                               network=pd.DataFrame(), failures=pd.DataFrame())
+    summary = batch._summary(report)
+    for text in outcome.warnings:
+        assert f"warning: site 'short': {text}" in summary
+    again = batch.run_site("short", config, tmp_path / "out" / "short")
+    assert again.status == "skipped" and again.warnings == outcome.warnings

@@ -188,6 +188,28 @@ def test_cli_names_the_budget_year_periods(two_years):
     assert "Budget years" not in _format_annual(aggregate(frame, 30).annual)
 
 
+def test_cli_uncertainty_parts_combine_into_the_printed_total(written_demo):
+    """The printed parts of each flux's uncertainty combine in quadrature into its printed
+    total, as the table's header says (root sum of squares of independent 1-sigma parts,
+    GUM, JCGM 100:2008 §5.1 (m)). Review round eighteen: nighttime GPP was printed with
+    NEE's random and gap-filling parts (its own are those outside the night only) and the
+    temperature-driver and respiration-form parts had no column, so the parts of a
+    nighttime GPP of total 7.9 g C m-2 added up to 8.7."""
+    from fluxpart.cli import _format_annual
+    from fluxpart.uncertainty_parts import uncertainty_parts
+
+    result, _ = written_demo
+    table = uncertainty_parts(result.annual)
+    parts = table.drop(columns=["total", "ci95_low", "ci95_high"])
+    combined = np.sqrt(np.square(parts).sum(axis=1, min_count=1))
+    assert np.allclose(combined, table["total"], rtol=1e-9, atol=0.0)
+    assert {"temperature", "form"} <= set(table.columns)
+    nighttime_gpp = table.xs("gpp_nighttime", level="flux")
+    assert np.allclose(nighttime_gpp["random"],
+                       result.annual["gpp_nighttime_uncertainty_random"].to_numpy())
+    assert "temperature" in _format_annual(result.annual)
+
+
 def test_partial_year_warning_states_its_months():
     """A partial year's warning says how many months of records it holds (issue 13: partial
     years stated as months): 60 days of a non-leap year are 60 / 365 x 12 = 1.97 months

@@ -34,6 +34,19 @@ def test_check_prints_the_coverage_table(example, capsys):
     assert "spike" in out and "u* threshold" in out and "detected" in out
 
 
+def test_check_names_the_months_of_each_u_star_season(example, capsys):
+    """Behaviour check (review round eighteen): the u* table of `check` named seasons
+    ("winter") without their months, which differ between the hemispheres; the result's
+    table and the report carry them. Each season row now shows its months: at the
+    northern example, meteorological winter is December to February (common practice)."""
+    assert main(["check", str(example)]) == 0
+    out = capsys.readouterr().out
+    table = out[out.index("u* threshold [m s-1]"):].splitlines()
+    assert "months" in table[1].split()
+    winter = [line.split() for line in table if " winter " in f" {line} "]
+    assert winter and all(row[1:3] == ["winter", "DJF"] for row in winter)
+
+
 def test_run_writes_the_result_folder(example, tmp_path, capsys):
     """`fluxpart run` writes every table and a manifest that records the input's SHA-256."""
     out_dir = tmp_path / "out"

@@ -58,6 +58,21 @@ def test_setting_and_annual_moves_are_listed(folders, capsys):
     assert "setting rg_tolerance" in out and "first 50.0" in out and "second 80.0" in out
 
 
+def test_another_seed_is_listed_once():
+    """Behaviour check (review round eighteen): the manifest records the seed as the
+    setting `seed` and as its own field; a rerun with another seed was listed twice, as
+    "setting seed" and "seed seed". Where the field equals the setting it is listed once;
+    a seed field that disagrees with its own setting (an edited manifest) is still named."""
+    from fluxpart.diff import _recorded_items
+
+    first = {"config": {"seed": 0, "rg_tolerance": 50.0}, "seed": 0}
+    second = {"config": {"seed": 7, "rg_tolerance": 50.0}, "seed": 7}
+    named = [(section, name, a, b) for section, name, a, b in _recorded_items(first, second)]
+    assert named == [("setting", "seed", "0", "7")]
+    edited = {"config": {"seed": 0, "rg_tolerance": 50.0}, "seed": 7}
+    assert ("seed", "seed", "0", "7") in _recorded_items(first, edited)
+
+
 def test_two_sites_are_said_to_be_no_rerun(folders, capsys):
     """Folders of two towers: a note under the count says the annual moves compare two
     sites (review, round five); two results of one site get no such note."""

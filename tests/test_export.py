@@ -109,6 +109,25 @@ def test_gap_filled_drivers_say_which_values_were_filled(exported):
     assert "ancillary_variables" not in dataset["ustar"].attrs
 
 
+def test_daily_sums_link_their_uncertainty_and_coverage(exported):
+    """Each daily sum names its 1-sigma and the day's measured share as ancillary
+    variables (CF conventions 1.10, section 3.4: "ancillary_variables" lists the
+    variables that describe a data variable, such as its standard error), so a modeller
+    who selects gpp_daytime_daily_sum finds its uncertainty. Review round eighteen: the
+    sigma variables stood in the file unlinked."""
+    result, dataset = exported
+    sums = [name for name in dataset.data_vars if name.endswith("_daily_sum")]
+    assert sums
+    for name in sums:
+        linked = dataset[name].attrs["ancillary_variables"].split()
+        assert linked == [f"{name}_sigma", "share_measured_daily"]
+        for other in linked:
+            assert dataset[other].dims == dataset[name].dims
+        flux = name.removesuffix("_daily_sum")
+        np.testing.assert_array_equal(dataset[f"{name}_sigma"].to_numpy(),
+                                      result.daily[f"{flux}_sigma"].to_numpy())
+
+
 def test_site_and_conventions_are_global_attributes(exported):
     """The site, CF version, feature type and the caution travel with the file."""
     result, dataset = exported

@@ -515,3 +515,24 @@ def test_partitioned_sums_nan_for_an_unfilled_driver_are_named():
     assert len(text) == 1 and text[0].startswith("2021: the sums of reco_nighttime")
     assert f"reco_nighttime lacks {lacking} records" in text[0]
     assert f"tair ({lacking} records)" in text[0]
+
+
+def test_the_fallback_e0_warning_states_the_value_the_windows_took():
+    """Behaviour check (review round eighteen): the warning of daytime windows without an
+    E0 of their own stated the median of the daytime E0 over all records, which mixes
+    the windows that had their own E0 with those that took the nighttime method's; on a
+    record of three calendar years it also called a median of the years' E0 that no year
+    had (236 K between 226 and 246 K) "the nighttime method's E0". It now states the
+    value the flagged windows hold and, over several years, each year's E0."""
+    from fluxpart.pipeline import _fallback_e0_text
+
+    parameters = pd.DataFrame({"e0": [301.0, 236.0, 236.0, 298.0],
+                               "e0_source": ["year", "fallback", "fallback", "year"]})
+    fell_back = parameters["e0_source"] == "fallback"
+    years = pd.DataFrame({"e0": [246.0, 226.0, 249.0]},
+                         index=pd.Index([2020, 2021, 2022], name="year"))
+    text = _fallback_e0_text(parameters, fell_back, years)
+    assert "(236 K;" in text
+    assert "2020: 246 K, 2021: 226 K, 2022: 249 K" in text
+    one_year = _fallback_e0_text(parameters, fell_back, years.iloc[[1]])
+    assert one_year == "the nighttime method's E0 (236 K)"

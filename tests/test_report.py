@@ -481,6 +481,31 @@ def test_summary_numbers_equal_the_annual_table(which, request):
     assert ("no 95 % interval" in text) == (not has_interval)
 
 
+def test_summary_names_what_the_uncertainty_comes_from(folder):
+    """Behaviour check (review round eighteen): the summary card said the NEE interval but
+    not what made it; the parts were only in a folded table of 40 columns. Each card now
+    lists NEE's parts, largest first, each equal to its annual.parquet column (read with
+    pyarrow) rounded to 0.1, and their root sum of squares is the printed total (GUM,
+    JCGM 100:2008 §5.1 (m))."""
+    annual = pq.read_table(folder["directory"] / "annual.parquet").to_pandas().set_index("year")
+    text = html.unescape(folder["text"])
+    sentence = re.search(r"What the uncertainty comes from:</strong> NEE ± ([0-9.]+) g C m-2 "
+                         r"\(1 sigma\): (.*?[0-9])\. Largest", text)
+    assert sentence is not None
+    assert float(sentence.group(1)) == round(annual.loc[2021, "nee_uncertainty_total"], 1)
+    columns = {"gap filling": "nee_uncertainty_gapfill", "random error": "nee_uncertainty_random",
+               "u* threshold": "nee_uncertainty_ustar"}
+    listed = [re.fullmatch(r"(.+) ([0-9.]+)", item.strip()).groups()
+              for item in sentence.group(2).split(",")]
+    assert [name for name, _ in listed] == sorted(
+        columns, key=lambda name: -annual.loc[2021, columns[name]])
+    for name, value in listed:
+        assert float(value) == round(annual.loc[2021, columns[name]], 1), name
+    squares = sum(annual.loc[2021, column] ** 2 for column in columns.values())
+    assert np.sqrt(squares) == pytest.approx(annual.loc[2021, "nee_uncertainty_total"], rel=1e-9)
+    assert "Largest part of each partitioned flux" in text
+
+
 def test_an_older_folder_says_what_it_lacks(older):
     """Without the clock check, 1-sigma columns or window status the page says so."""
     text = older["text"]
@@ -724,7 +749,7 @@ def test_unchecked_values_are_marked_once_in_the_settings_table(folder):
 def test_report_modules_import_no_pipeline_or_method_module():
     """The report reads the folder only: its modules import no pipeline or method module."""
     allowed = {"config", "constants", "errors", "figures", "manifest", "store", "units",
-               "responses", "progress", "resultdir", "fingerprint"}
+               "responses", "progress", "resultdir", "fingerprint", "uncertainty_parts"}
     root = Path(fluxpart.__file__).parent
     for name in ("report.py", "figures.py"):
         tree = ast.parse((root / name).read_text(encoding="utf-8"))

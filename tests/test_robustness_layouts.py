@@ -103,6 +103,22 @@ def test_day_first_dates_with_one_bad_stamp_get_no_exchange_hint():
     assert "exchanged" not in str(caught.value)
 
 
+def test_one_damaged_stamp_that_reads_exchanged_gets_no_exchange_hint():
+    """Behaviour check (review round eighteen): a year of year-first stamps with one
+    damaged month ("2021-13-01", which reads as 13 January with day and month exchanged)
+    was told to write time_format = "%Y-%d-%m %H:%M", a format under which every stamp
+    after the 12th of a month fails (Gregorian calendar: no month 13). The stamps that
+    parse read only as they are, so the hint is left out."""
+    stamps = pd.date_range("2021-01-01 00:30", "2021-03-01 00:00", freq="30min")
+    text = list(stamps.strftime("%Y-%m-%d %H:%M"))
+    text[1000] = "2021-13-01 01:00"
+    with pytest.raises(TimestampError) as caught:
+        _parse(text, "%Y-%m-%d %H:%M")
+    message = str(caught.value)
+    assert "'2021-13-01 01:00'" in message and "line 1002" in message
+    assert "exchanged" not in message
+
+
 @pytest.mark.parametrize("cell", ["-9999", "", " ", "0"])
 def test_a_record_without_a_stamp_is_not_called_a_utc_offset(cell):
     """A missing code or an empty cell in the time column: "-9999" ends like an ISO 8601
@@ -572,3 +588,19 @@ def test_one_month_file_in_kilowatts_among_monthly_files_only_warns(tmp_path):
     _, report = read_input(read_site_config(config))
     assert any("may have changed within the record" in w and "2021-08" in w
                for w in report.warnings)
+
+
+@pytest.mark.parametrize(("stamps_format", "given", "wanted"), [
+    ("%Y-%m-%d %H:%M", "%Y-%m-%d %H:%M:%S", '"%Y-%m-%d %H:%M"'),
+    ("%d.%m.%Y %H:%M:%S", "%d.%m.%Y %H:%M", '"%d.%m.%Y %H:%M:%S"')])
+def test_seconds_in_only_one_of_stamp_and_format_are_named(stamps_format, given, wanted):
+    """Behaviour check (review round eighteen): time_format with ":%S" for stamps without
+    seconds (or the other way round) failed every stamp with no hint. strptime needs
+    every directive matched and no text left over (Python documentation of
+    datetime.strptime), so the format without (or with) seconds is named; it reads
+    every stamp."""
+    truth = pd.date_range("2021-06-01 00:30", periods=48, freq="30min")
+    text = list(truth.strftime(stamps_format))
+    with pytest.raises(TimestampError, match=re.escape(f"time_format = {wanted}")):
+        _parse(text, given)
+    assert list(_parse(text, wanted.strip('"'))) == list(truth)

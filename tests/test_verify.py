@@ -706,6 +706,26 @@ def test_a_computed_manifest_number_rounds_like_a_table_cell():
         ("manifest", "config.despike_z"), ("manifest", "provenance.respiration_driver.sad.tair")]
 
 
+def test_a_long_manifest_field_shows_where_the_two_values_part():
+    """Behaviour check (review round eighteen): a warning reworded after its first 200
+    characters was shown as two identical 197-character beginnings, so the verdict named
+    the field but not the difference. Both values now start shortly before the first
+    character where they differ; short values are shown whole as before."""
+    from fluxpart.verify import _compare_manifests
+
+    head = "daytime partitioning: " + "x" * 300
+    stored = {"warnings": [head + "; the nighttime method's E0 (236 K) was used there"]}
+    again = {"warnings": [head + "; the median over the record of the nighttime E0 was used"]}
+    (found,) = _compare_manifests(stored, again)
+    assert found.column == "warnings"
+    assert found.stored.startswith("...") and found.recomputed.startswith("...")
+    assert "the nighttime method's E0 (236 K)" in found.stored
+    assert "the median over the record" in found.recomputed
+    assert found.stored != found.recomputed and len(found.stored) <= 203
+    (short,) = _compare_manifests({"seed": 0}, {"seed": 7})
+    assert (short.stored, short.recomputed) == ("0", "7")
+
+
 def test_verify_names_what_a_stopped_run_left_beside_the_folder(copy, capsys):
     """A run killed (kill -9) into an earlier result leaves that result whole and its
     staging folder beside it; verify said 'bit-identical' for the earlier result without
