@@ -425,7 +425,7 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
-#: What a command stopped by Ctrl-C or SIGTERM leaves behind, by command ('' for the rest).
+#: What a command stopped by Ctrl-C, SIGTERM or SIGHUP leaves behind, by command ('' for the rest).
 _AFTER_STOP = {
     "": "an output folder holds its earlier content or a complete new result, never a mix",
     "batch": "each site's result folder holds its earlier content or a complete new result, "
@@ -443,16 +443,44 @@ _AFTER_STOP = {
 
 
 class _Terminated(BaseException):
-    """SIGTERM (``kill``, a batch scheduler's time limit) raised in the running command.
+    """SIGTERM (``kill``, a batch scheduler's time limit) or SIGHUP (the terminal or the
+    SSH session closed) raised in the running command.
 
     A BaseException like KeyboardInterrupt, so that it unwinds the same way: a result
     folder being staged is removed (:func:`fluxpart.resultdir.write_folder`) instead of
-    being left beside the output folder by a process killed outright.
+    being left beside the output folder by a process killed outright. ``signum`` is the
+    signal received (SIGTERM where raised without one).
     """
+
+    def __init__(self, signum=signal.SIGTERM):
+        super().__init__(signum)
+        self.signum = signum
 
 
 def _raise_terminated(signum, frame):
-    raise _Terminated
+    raise _Terminated(signum)
+
+
+#: How the stop message names each signal handled as :class:`_Terminated`.
+_STOP_NAMES = {signal.SIGTERM: "terminated (SIGTERM)"}
+if hasattr(signal, "SIGHUP"):          # POSIX only
+    _STOP_NAMES[signal.SIGHUP] = "hung up (SIGHUP: the terminal or session closed)"
+
+
+def _install_stop_handlers() -> dict:
+    """Handle SIGTERM, and SIGHUP where it has its default action, as :class:`_Terminated`.
+
+    SIGHUP's default action ends the process outright, like ``kill -9``: a terminal or SSH
+    session closed during ``run`` or ``report`` left the staging folder, and a report's lies
+    inside the result folder, which then failed its manifest check in ``verify``, ``load``
+    and ``diff``. A SIGHUP already ignored (``nohup``, ``disown`` under some shells) stays
+    ignored. Returns the handlers replaced, to be put back.
+    """
+    replaced = {signal.SIGTERM: signal.signal(signal.SIGTERM, _raise_terminated)}
+    hangup = getattr(signal, "SIGHUP", None)
+    if hangup is not None and signal.getsignal(hangup) is signal.SIG_DFL:
+        replaced[hangup] = signal.signal(hangup, _raise_terminated)
+    return replaced
 
 
 class _QuietWhenClosed:
@@ -551,9 +579,9 @@ def main(argv=None) -> int:
     args = _parse(argv)
     thresholds = gc.get_threshold()
     gc.set_threshold(*_GC_THRESHOLDS)
-    on_term = None
+    replaced = {}
     if threading.current_thread() is threading.main_thread():
-        on_term = signal.signal(signal.SIGTERM, _raise_terminated)
+        replaced = _install_stop_handlers()
     stdout = sys.stdout
     sys.stdout = _QuietWhenClosed(stdout)
     try:
@@ -579,10 +607,14 @@ def main(argv=None) -> int:
         print(f"error: interrupted (Ctrl-C); {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}",
               file=sys.stderr)
         return 130
-    except _Terminated:
-        print(f"error: terminated (SIGTERM); {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}",
-              file=sys.stderr)
-        return 128 + signal.SIGTERM
+    except _Terminated as stop:
+        said = _STOP_NAMES.get(stop.signum, f"stopped by signal {int(stop.signum)}")
+        try:
+            print(f"error: {said}; {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}",
+                  file=sys.stderr)
+        except OSError:
+            pass                    # a hung-up terminal takes no more output (EIO)
+        return 128 + int(stop.signum)
     except BrokenPipeError:          # output piped into e.g. `head`, which closed early
         sys.stderr.close()
         return 0
@@ -596,8 +628,8 @@ def main(argv=None) -> int:
         return 2
     finally:
         sys.stdout = stdout
-        if on_term is not None:
-            signal.signal(signal.SIGTERM, on_term)
+        for signum, handler in replaced.items():
+            signal.signal(signum, handler)
         gc.set_threshold(*thresholds)
         if argv is None:
             gc.freeze()

@@ -166,12 +166,24 @@ def without_paths(provenance: dict) -> dict:
 
 
 def recorded_path(directory, entry: dict) -> Path | None:
-    """Where a recorded ``path`` (relative to the result folder) points now, or None."""
+    """Where a recorded ``path`` (relative to the result folder) points now, or None.
+
+    The path is taken from the folder as spelled (``..`` removed by name, as it was
+    recorded); where nothing is there, from the folder's real place: a folder reached
+    through a symbolic link (``latest -> runs/2021/out``) has another parent than the
+    link's, and ``..`` leads to the real one (POSIX path resolution).
+    """
     text = entry.get("path") if isinstance(entry, dict) else None
     if not isinstance(text, str) or not text:
         return None
     path = Path(text)
-    return path if path.is_absolute() else Path(os.path.abspath(Path(directory) / path))
+    if path.is_absolute():
+        return path
+    spelled = Path(os.path.abspath(Path(directory) / path))
+    if spelled.exists():
+        return spelled
+    real = Path(os.path.abspath(Path(os.path.realpath(directory)) / path))
+    return real if real.exists() else spelled
 
 
 def recorded_paths(provenance: dict, directory) -> list[Path]:

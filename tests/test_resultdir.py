@@ -604,3 +604,35 @@ def test_a_damaged_manifest_protects_the_files_a_user_put_beside_it(short_result
     short_result.write(out)
     assert read_folder(out)[0]["tables"] == read_folder(short_result.write(tmp_path / "b"))[0][
         "tables"]
+
+
+def test_a_mount_point_as_the_output_folder_is_refused_naming_a_folder_inside(
+        short_result, tmp_path, monkeypatch):
+    """A mount point (a container's volume `-v host:/out`, a mounted drive) cannot be
+    renamed (rename(2): EBUSY, "the directory is in use ... as a mount point"), so the swap
+    failed with "Device or resource busy" after the whole computation, no fix named. A
+    mount point seen by os.path.ismount is refused before writing; a bind mount within one
+    file system, which ismount does not see, is named from the swap's EBUSY; both name a
+    folder inside it, and nothing is left beside it."""
+    import errno
+
+    out = tmp_path / "volume"
+    out.mkdir()
+    real_ismount = os.path.ismount
+    monkeypatch.setattr(os.path, "ismount", lambda path: Path(path) == out or real_ismount(path))
+    with pytest.raises(OutputError, match="is a mount point.*give a folder inside it, e.g. "
+                       f"'{out / 'result'}'"):
+        short_result.write(out)
+    assert list(out.iterdir()) == [] and _leftovers(out) == []
+    monkeypatch.setattr(os.path, "ismount", real_ismount)
+
+    def busy(first, second):
+        raise OSError(errno.EBUSY, os.strerror(errno.EBUSY), str(second))
+
+    monkeypatch.setattr(resultdir, "_exchange", busy)
+    with pytest.raises(OutputError, match="is a mount point"):
+        short_result.write(out)
+    assert list(out.iterdir()) == [] and _leftovers(out) == []
+    written = short_result.write(out / "result")        # the folder named works
+    manifest, tables = read_folder(written)
+    assert sorted(tables) == sorted(manifest["tables"]) and "annual" in tables

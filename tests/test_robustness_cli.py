@@ -130,6 +130,55 @@ def test_sigterm_while_staging_is_one_line_and_leaves_no_staging(tmp_path):
     assert not any(".staging" in path.name for path in tmp_path.iterdir())
 
 
+_STAGED_RUN = (
+    "import os, signal, time, sys\n"
+    "import pandas as pd\n"
+    "import fluxpart.cli as cli, fluxpart.resultdir as resultdir\n"
+    "if sys.argv[2] == 'ignored':\n"
+    "    signal.signal(signal.SIGHUP, signal.SIG_IGN)\n"
+    "real_swap = resultdir._swap_in\n"
+    "def hung_up(staging, directory):\n"
+    "    os.kill(os.getpid(), signal.SIGHUP)\n"
+    "    time.sleep(0.5)\n"
+    "    real_swap(staging, directory)\n"
+    "resultdir._swap_in = hung_up\n"
+    "def command(args):\n"
+    "    resultdir.write_folder(args.out, {'annual': pd.DataFrame({'nee': [1.0]})},\n"
+    "                           site={}, config={}, seed=0, provenance={})\n"
+    "    return 0\n"
+    "cli._command_run = command\n"
+    "sys.exit(cli.main(['run', 'site.toml', '--out', sys.argv[1]]))\n")
+
+
+def test_sighup_while_staging_unwinds_like_sigterm_unless_ignored(tmp_path):
+    """The terminal or SSH session closing sends SIGHUP, whose default action (POSIX
+    signal(7): terminate) ended a run or report outright, like kill -9: the staging folder
+    stayed, and a report's lies inside the result folder. Now it unwinds as SIGTERM does:
+    exit 129 (128 + SIGHUP, the shell convention), one `error:` line, no staging left. A
+    SIGHUP ignored on purpose (`nohup`, which sets SIG_IGN) stays ignored: the run ends
+    normally with its result written."""
+    import os
+    import signal
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    env = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    out = tmp_path / "out"
+    done = subprocess.run([sys.executable, "-c", _STAGED_RUN, str(out), "default"], env=env,
+                          cwd=tmp_path, capture_output=True, text=True, timeout=120)
+    err = done.stderr.strip().splitlines()
+    assert done.returncode == 128 + signal.SIGHUP, done.stderr
+    assert len(err) == 1 and err[0].startswith("error: hung up (SIGHUP")
+    assert not out.exists()
+    assert not any(".staging" in path.name for path in tmp_path.iterdir())
+    done = subprocess.run([sys.executable, "-c", _STAGED_RUN, str(out), "ignored"], env=env,
+                          cwd=tmp_path, capture_output=True, text=True, timeout=120)
+    assert done.returncode == 0, done.stderr
+    assert (out / "manifest.json").is_file()
+    assert not any(".staging" in path.name for path in tmp_path.iterdir())
+
+
 def test_usage_mistakes_are_one_error_line(capsys):
     """A missing argument, an unknown command or option, a bad option value: one `error:`
     line naming the command and the mistake, exit 2 (before: argparse's usage block and a
