@@ -500,8 +500,10 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
     a damaged manifest lets its own folder be rewritten but not the files a user put
     beside it (a truncated manifest let ``run --out`` delete an input file and notes
     moved into the folder, review round thirteen). A report folder: what is neither
-    `marker` nor a ``.png`` figure. Hidden entries (a file manager's ``.DS_Store``, an
-    interrupted writer's staging) are not counted.
+    `marker` nor a ``.png`` figure. What a file manager or a network file system leaves
+    (:func:`_disposable`) and an interrupted report's staging are not counted; other
+    hidden entries are the user's (a ``.git`` folder, R's ``.RData`` workspace saved
+    where R ran) and count: they had been deleted with the folder without a word.
     """
     try:
         names = sorted(path.name for path in directory.iterdir())
@@ -517,7 +519,21 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
             listed = {name for name in names if _run_writes(name)}
     else:
         listed = {marker} | {name for name in names if name.endswith(".png")}
-    return [name for name in names if name not in listed and not name.startswith(".")]
+    return [name for name in names if name not in listed and not _disposable(name)
+            and not _report_leftover(directory / name)]
+
+
+#: Hidden names that file managers and network file systems leave in any folder: macOS
+#: Finder's ``.DS_Store`` and AppleDouble ``._*`` files, KDE Dolphin's ``.directory``,
+#: NFS's ``.nfs*`` and FUSE's ``.fuse_hidden*`` stand-ins for files deleted while open.
+_DISPOSABLE_PREFIXES = ("._", ".nfs", ".fuse_hidden")
+_DISPOSABLE_NAMES = (".DS_Store", ".directory")
+
+
+def _disposable(name: str) -> bool:
+    """Whether `name` is what a file manager or network file system leaves in a folder
+    (its loss with a replaced folder costs nothing)."""
+    return name in _DISPOSABLE_NAMES or name.startswith(_DISPOSABLE_PREFIXES)
 
 
 #: The tables of a result folder other than the ``parameters_*`` ones.

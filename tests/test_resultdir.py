@@ -636,3 +636,30 @@ def test_a_mount_point_as_the_output_folder_is_refused_naming_a_folder_inside(
     written = short_result.write(out / "result")        # the folder named works
     manifest, tables = read_folder(written)
     assert sorted(tables) == sorted(manifest["tables"]) and "annual" in tables
+
+
+def test_a_users_hidden_files_in_a_result_folder_are_not_deleted(short_result, tmp_path):
+    """A `.git` folder (results tracked where they lie) or R's `.RData` workspace (R saves
+    it in the folder it ran in, R documentation of `save.image` (m)) inside a result
+    folder: the next run replaced the folder whole and deleted them without a word, hidden
+    entries not being counted. They now refuse the write, named, nothing changed; what
+    Finder (`.DS_Store`, AppleDouble `._*`), Dolphin (`.directory`) and an interrupted
+    report leave still does not."""
+    out = tmp_path / "out"
+    short_result.write(out)
+    (out / ".git").mkdir()
+    (out / ".git" / "HEAD").write_text("ref: refs/heads/main\n")
+    (out / ".RData").write_bytes(b"RDX3\n")
+    with pytest.raises(OutputError, match=r"holds '\.RData', '\.git', which fluxpart did not "
+                                          "write there"):
+        short_result.write(out)
+    assert (out / ".git" / "HEAD").read_text() == "ref: refs/heads/main\n"
+    assert (out / ".RData").read_bytes() == b"RDX3\n" and _leftovers(out) == []
+    (out / ".RData").unlink()
+    (out / ".git" / "HEAD").unlink()
+    (out / ".git").rmdir()
+    for name in (".DS_Store", "._annual.parquet", ".directory"):
+        (out / name).write_text("")
+    (out / ".report.staging-k1ll3d00").mkdir()
+    short_result.write(out)
+    assert not (out / ".DS_Store").exists()         # replaced whole, as before
