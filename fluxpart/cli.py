@@ -197,9 +197,19 @@ def _check_output_folder(out: Path, site_name=None) -> None:
 
     from .resultdir import replace_refusal
 
+    try:
+        here = Path.cwd().resolve()
+    except OSError:
+        # the shell's folder was deleted (e.g. replaced whole by another run): it cannot
+        # lie in --out, and only an absolute --out can be found (a relative one is named)
+        here = None
+        if not out.is_absolute():
+            raise FluxpartError(f"--out {str(out)!r} is relative to the current folder, "
+                                "which no longer exists (deleted or replaced while this "
+                                "shell was in it): cd to an existing folder, or give "
+                                "--out as an absolute path") from None
     out = out.absolute()
-    here = Path.cwd().resolve()
-    if out.resolve() == here or out.resolve() in here.parents:
+    if here is not None and (out.resolve() == here or out.resolve() in here.parents):
         # the folder is replaced whole: the process (and the user's shell) would be left
         # in a deleted folder, and demo's report then failed with a traceback
         raise FluxpartError(f"--out {str(out)!r} is the current folder or holds it; a result "
@@ -558,6 +568,15 @@ def _parse(argv):
     return args
 
 
+def _cwd_gone() -> bool:
+    """Whether the process's current folder has been deleted."""
+    try:
+        os.getcwd()
+    except FileNotFoundError:
+        return True
+    return False
+
+
 def _too_long(error: OSError) -> str:
     """The message for a path the operating system refuses as too long (ENAMETOOLONG)."""
     name = str(error.filename or "")
@@ -619,6 +638,13 @@ def main(argv=None) -> int:
         sys.stderr.close()
         return 0
     except OSError as error:
+        if error.errno == errno.ENOENT and error.filename is None and _cwd_gone():
+            # os.getcwd() (Path.absolute, Path.resolve of a relative path) in a folder
+            # deleted while the shell was in it: a traceback before
+            print("error: the current folder no longer exists (deleted or replaced while "
+                  "this shell was in it), so relative paths cannot be found: cd to an "
+                  "existing folder, or give absolute paths", file=sys.stderr)
+            return 2
         if error.errno != errno.ENAMETOOLONG:
             raise
         # a path given on the command line (or a name derived from it) longer than the

@@ -332,3 +332,34 @@ def test_a_name_longer_than_the_system_allows_is_one_error_line(tmp_path, capsys
         assert len(err) == 1 and err[0].startswith("error: the path '"), (argv, err)
         assert "longer than this system allows" in err[0] and "aaaa" in err[0], (argv, err)
     assert sorted(p.name for p in tmp_path.iterdir()) == ["out", "site.toml"]
+
+
+def test_a_deleted_current_folder_is_one_error_line(tmp_path):
+    """A shell left in a folder that was deleted (a result folder replaced whole by another
+    run while a terminal was in it): getcwd(3) fails with ENOENT, and every command given
+    a relative path, `run` and `demo` even with absolute ones, ended in a traceback. Now one
+    `error:` line, exit 2; `verify` of an absolute path works on."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    script = ("import os, sys\n"
+              "import fluxpart.cli as cli\n"
+              "os.chdir(sys.argv[1]); os.rmdir(sys.argv[1])\n"
+              "sys.exit(cli.main(sys.argv[2:]))\n")
+    env = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    config = tmp_path / "site.toml"
+    config.write_text("[processing]\nseed = 0\n")
+    for number, argv in enumerate((["verify", "out"], ["report", "out"],
+                                   ["run", str(config), "--out", "out"],
+                                   ["demo", "--out", "out"])):
+        gone = tmp_path / f"gone{number}"
+        gone.mkdir()
+        done = subprocess.run([sys.executable, "-c", script, str(gone), *argv], env=env,
+                              cwd=tmp_path, capture_output=True, text=True, timeout=120)
+        err = done.stderr.strip().splitlines()
+        assert done.returncode == 2, done.stderr
+        assert len(err) == 1, err
+        assert ("the current folder no longer exists" in err[0]
+                or "is relative to the current folder, which no longer exists" in err[0]), err
