@@ -34,6 +34,7 @@ import hashlib
 import json
 import os
 import platform
+import unicodedata
 from pathlib import Path
 
 from .errors import InputFileError
@@ -171,7 +172,10 @@ def recorded_path(directory, entry: dict) -> Path | None:
     The path is taken from the folder as spelled (``..`` removed by name, as it was
     recorded); where nothing is there, from the folder's real place: a folder reached
     through a symbolic link (``latest -> runs/2021/out``) has another parent than the
-    link's, and ``..`` leads to the real one (POSIX path resolution).
+    link's, and ``..`` leads to the real one (POSIX path resolution). A name with accented
+    letters is also looked for in its other Unicode normal form: macOS (HFS+) stores names
+    decomposed (NFD), so a bundle copied through a Mac holds ``grün.csv`` as other bytes
+    than those recorded (Unicode Standard Annex #15).
     """
     text = entry.get("path") if isinstance(entry, dict) else None
     if not isinstance(text, str) or not text:
@@ -180,10 +184,13 @@ def recorded_path(directory, entry: dict) -> Path | None:
     if path.is_absolute():
         return path
     spelled = Path(os.path.abspath(Path(directory) / path))
-    if spelled.exists():
-        return spelled
-    real = Path(os.path.abspath(Path(os.path.realpath(directory)) / path))
-    return real if real.exists() else spelled
+    places = (Path(directory), Path(os.path.realpath(directory)))
+    for form in (text, *(unicodedata.normalize(f, text) for f in ("NFC", "NFD"))):
+        for place in places:
+            found = Path(os.path.abspath(place / form))
+            if found.exists():
+                return found
+    return spelled
 
 
 def recorded_paths(provenance: dict, directory) -> list[Path]:

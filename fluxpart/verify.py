@@ -1234,12 +1234,14 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     notes, rounding = list(folder_notes), []
     stopped = interrupted_writes(directory)
     if stopped:
-        # a killed `fluxpart run` into this folder leaves the earlier result whole; without
-        # this note its verdict read as if the folder held that run's result
+        # a killed `fluxpart run` into this folder leaves the earlier result whole, or, killed
+        # between its swap and removing the old result (then in the staging folder), its own
+        # result: without this note the verdict read as if the folder surely held that run's
         notes.append(f"{', '.join(stopped)} beside the folder: a fluxpart run into it is "
                      "running now or was stopped before it finished; the folder holds the "
-                     "complete result named on the result: line, not that run's (the next "
-                     "run removes what a stopped one left)")
+                     "complete result named on the result: line, the earlier one or, if "
+                     "that run was stopped just after swapping its result in, its own (the "
+                     "next run removes what a stopped one left)")
     if (directory / "report").exists():
         notes.append("report/: the page and its figures are drawn from the tables and are not "
                      "covered by the manifest's hashes, so they are not verified; redraw them "

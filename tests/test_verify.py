@@ -948,3 +948,36 @@ def test_a_result_reached_through_a_symbolic_link_finds_its_input(bundle, tmp_pa
     assert not (elsewhere / "tower.csv").exists()
     assert main(["verify", str(link), "--quiet"]) == 0
     assert capsys.readouterr().out.startswith("bit-identical")
+
+
+def test_a_staging_folder_beside_the_result_is_noted_without_claiming_whose(copy, capsys):
+    """A run killed after swapping its result in but before removing the old one (the
+    swap exchanges the two folders: the staging name then holds the earlier result) leaves
+    the new result in the folder; the note said the folder held "not that run's" result,
+    wrong in that case. It now names both possibilities; the verdict is the folder's."""
+    staging = copy / ".out.staging-k1ll3d00"
+    staging.mkdir()
+    (staging / "annual.parquet").write_bytes(b"half of the earlier result")
+    assert main(["verify", str(copy / "out")]) == 0
+    out = capsys.readouterr().out
+    assert ".out.staging-k1ll3d00 beside the folder" in out
+    assert "not that run's" not in out and "just after swapping its result in, its own" in out
+
+
+def test_an_input_name_decomposed_by_a_mac_copy_is_found(tmp_path, capsys):
+    """macOS (HFS+) stores file names decomposed (Unicode normal form NFD, Unicode Standard
+    Annex #15: "ü" as "u" + U+0308), so `grün.csv` copied through a Mac is another byte
+    string than the composed (NFC) name recorded: verify said the input "does not exist"
+    beside a file that looks identical. The other normal form is looked for too."""
+    import unicodedata
+
+    config = make_bundle(tmp_path)
+    composed = unicodedata.normalize("NFC", "grün.csv")
+    (tmp_path / "tower.csv").rename(tmp_path / composed)
+    config.write_text(config.read_text().replace('path = "tower.csv"', f'path = "{composed}"'))
+    process_site_config(config).write(tmp_path / "out")
+    decomposed = unicodedata.normalize("NFD", composed)
+    assert decomposed != composed
+    (tmp_path / composed).rename(tmp_path / decomposed)
+    assert main(["verify", str(tmp_path / "out"), "--quiet"]) == 0
+    assert capsys.readouterr().out.startswith("bit-identical")
