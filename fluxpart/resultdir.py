@@ -477,6 +477,9 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
         return (f"holds {shown}, which fluxpart did not write there (an input file, a site "
                 f"config or notes put into {kind}?), and writing would replace the folder "
                 "whole and delete them: move them out of it")
+    if _read_only_mount(directory):
+        return ("is on a file system mounted read-only (a read-only share or mount, a disc), "
+                "where nothing can be written or removed")
     protected = _write_protected(directory)
     if protected is not None:
         return (f"is write-protected ({str(protected)!r} cannot be changed: kept read-only on "
@@ -548,6 +551,19 @@ def _run_writes(name: str) -> bool:
     stem, dot, suffix = name.rpartition(".")
     return bool(dot) and suffix == "parquet" and (stem in _RESULT_TABLES
                                                   or stem.startswith("parameters_"))
+
+
+def _read_only_mount(directory: Path) -> bool:
+    """Whether `directory` lies on a file system mounted read-only (POSIX statvfs
+    ``ST_RDONLY``), where a chmod, which the write-protected message asked for, cannot
+    help."""
+    flag = getattr(os, "ST_RDONLY", None)
+    if flag is None or not hasattr(os, "statvfs"):
+        return False
+    try:
+        return bool(os.statvfs(directory).f_flag & flag)
+    except OSError:
+        return False
 
 
 def _write_protected(directory: Path) -> Path | None:

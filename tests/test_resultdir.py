@@ -663,3 +663,28 @@ def test_a_users_hidden_files_in_a_result_folder_are_not_deleted(short_result, t
     (out / ".report.staging-k1ll3d00").mkdir()
     short_result.write(out)
     assert not (out / ".DS_Store").exists()         # replaced whole, as before
+
+
+def test_a_result_on_a_read_only_mount_names_the_mount_not_chmod(short_result, tmp_path,
+                                                                 monkeypatch):
+    """A result folder on a file system mounted read-only (statvfs ST_RDONLY, POSIX) was
+    called write-protected with the fix `chmod -R u+w`, which a read-only mount refuses
+    too. It is now named as on a read-only mount; nothing is changed."""
+    out = short_result.write(tmp_path / "out")
+    before = read_folder(out)[0]["seal"]
+    real_statvfs = os.statvfs
+
+    class ReadOnly:
+        def __init__(self, status):
+            self._status = status
+            self.f_flag = status.f_flag | os.ST_RDONLY
+
+        def __getattr__(self, name):
+            return getattr(self._status, name)
+
+    monkeypatch.setattr(os, "statvfs", lambda path: ReadOnly(real_statvfs(path)))
+    with pytest.raises(OutputError, match="is on a file system mounted read-only") as refused:
+        short_result.write(out)
+    assert "chmod" not in str(refused.value)
+    monkeypatch.setattr(os, "statvfs", real_statvfs)
+    assert read_folder(out)[0]["seal"] == before and _leftovers(out) == []
