@@ -1109,6 +1109,40 @@ def _rewritten_elsewhere(path: Path, index=None):
     return frame
 
 
+def _recorded_file_inside(path: Path, manifest: dict) -> str | None:
+    """What to say of an unlisted file in the result folder that is the run's own input
+    file or site config (its SHA-256 recorded in the manifest), or None.
+
+    Such a file was put into the folder to travel with it; it fails the folder check
+    like any other, but "not listed in the manifest" did not say it is the genuine input
+    or that moving it out, to its recorded place, is the whole fix.
+    """
+    provenance = manifest.get("provenance")
+    if not isinstance(provenance, dict) or not path.is_file() or path.is_symlink():
+        return None
+    recorded = []
+    for key, what in (("input", "input file"), ("site_config", "site config")):
+        entry = provenance.get(key)
+        if not isinstance(entry, dict):
+            continue
+        parts = entry.get("files") if isinstance(entry.get("files"), list) else [entry]
+        recorded += [(part, what) for part in parts if isinstance(part, dict)]
+    try:
+        if path.stat().st_size > 4 * 2**30:
+            return None
+        sha = file_sha256(path)
+    except (OSError, FluxpartError):
+        return None
+    for part, what in recorded:
+        if part.get("sha256") == sha:
+            place = part.get("path")
+            where = f" ({place!r} relative to the folder)" if isinstance(place, str) else ""
+            return (f"is the run's {what} (its recorded SHA-256), put into the result folder, "
+                    f"which must hold only the files its manifest lists: move it out to its "
+                    f"recorded place{where} and verify again")
+    return None
+
+
 def _read_stored(directory: Path):
     """The manifest, the folder's mismatches with it, notes and the stored tables, all read
     from one state of the folder.
@@ -1148,8 +1182,12 @@ def _read_stored(directory: Path):
                 differences.append(Difference(table, "file", stored=problem.file,
                                               recomputed=problem.detail))
             else:
+                detail = problem.detail
+                if kind == "extra":
+                    detail = _recorded_file_inside(directory / problem.file.rstrip("/"),
+                                                   manifest) or detail
                 differences.append(Difference("folder", kind, column=problem.file,
-                                              stored=problem.detail))
+                                              stored=detail))
         stored_tables = {}
         for name, entry in sorted(manifest["tables"].items()):
             path = directory / str(entry.get("file", "")) if isinstance(entry, dict) else None

@@ -981,3 +981,18 @@ def test_an_input_name_decomposed_by_a_mac_copy_is_found(tmp_path, capsys):
     (tmp_path / composed).rename(tmp_path / decomposed)
     assert main(["verify", str(tmp_path / "out"), "--quiet"]) == 0
     assert capsys.readouterr().out.startswith("bit-identical")
+
+
+def test_the_input_put_into_the_result_folder_is_named_as_the_input(copy, capsys):
+    """A result folder sent with its input file inside it: verify called it "not listed in
+    the manifest", like any stray file, without saying it is the genuine input (SHA-256
+    from hashlib equal to the recorded one) or that moving it to its recorded place is the
+    fix. The verdict is unchanged (exit 1): the folder is not the one written; a file
+    that is not the input is still only "not listed"."""
+    shutil.copy(copy / "tower.csv", copy / "out" / "tower.csv")
+    (copy / "out" / "notes.txt").write_text("mine\n")
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert ("tower.csv is the run's input file (its recorded SHA-256), put into the result "
+            "folder") in out and "'../tower.csv' relative to the folder" in out
+    assert "notes.txt is not listed in the manifest" in out
