@@ -602,7 +602,9 @@ def main(argv=None) -> int:
     if threading.current_thread() is threading.main_thread():
         replaced = _install_stop_handlers()
     stdout = sys.stdout
-    sys.stdout = _QuietWhenClosed(stdout)
+    # started with standard output closed (`>&-`, some service managers): Python then has
+    # no sys.stdout, and the first print raised AttributeError, exit 1 whatever the verdict
+    sys.stdout = _QuietWhenClosed(stdout if stdout is not None else open(os.devnull, "w"))
     try:
         with warnings.catch_warnings():
             # the commands print a result's warnings themselves, once, in their output

@@ -363,3 +363,22 @@ def test_a_deleted_current_folder_is_one_error_line(tmp_path):
         assert len(err) == 1, err
         assert ("the current folder no longer exists" in err[0]
                 or "is relative to the current folder, which no longer exists" in err[0]), err
+
+
+def test_a_closed_standard_output_keeps_the_exit_status(tmp_path):
+    """Started with standard output closed (`>&-`; POSIX sh: the descriptor is closed, and
+    Python then sets sys.stdout to None), a command's first print raised AttributeError:
+    a traceback and exit 1 after a successful `demo`, whatever the verdict of `verify`.
+    The output goes nowhere; the exit status is the command's own."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    env = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    out = tmp_path / "demo"
+    command = (f'"{sys.executable}" -m fluxpart demo --out "{out}" --quiet >&- ; echo "$?" >&2')
+    done = subprocess.run(["sh", "-c", command], env=env, cwd=tmp_path, capture_output=True,
+                          text=True, timeout=600)
+    assert done.stderr.strip().splitlines()[-1] == "0", done.stderr
+    assert "Traceback" not in done.stderr and (out / "manifest.json").is_file()
