@@ -522,8 +522,16 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
             listed = {name for name in names if _run_writes(name)}
     else:
         listed = {marker} | {name for name in names if name.endswith(".png")}
-    return [name for name in names if name not in listed and not _disposable(name)
-            and not _report_leftover(directory / name)]
+    found = [name for name in names if name not in listed and not _disposable(name)
+             and not _report_leftover(directory / name)]
+    report = directory / REPORT_FOLDER
+    if marker == MANIFEST_FILE and REPORT_FOLDER in listed and report.is_dir() \
+            and not report.is_symlink():
+        # the report folder goes with the result folder it is in: a user's notes put
+        # beside the page were deleted by the next run without a word (`report` itself
+        # refuses to replace such a folder)
+        found += [f"{REPORT_FOLDER}/{name}" for name in _unlisted_entries(report, "report.html")]
+    return sorted(found)
 
 
 #: Hidden names that file managers and network file systems leave in any folder: macOS

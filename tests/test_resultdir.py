@@ -688,3 +688,23 @@ def test_a_result_on_a_read_only_mount_names_the_mount_not_chmod(short_result, t
     assert "chmod" not in str(refused.value)
     monkeypatch.setattr(os, "statvfs", real_statvfs)
     assert read_folder(out)[0]["seal"] == before and _leftovers(out) == []
+
+
+def test_a_users_file_in_the_report_folder_is_not_deleted_by_a_rerun(short_result, tmp_path):
+    """Notes put beside the report page (`OUT/report/notes.txt`): `report` refuses to
+    replace such a folder, but the next `run --out OUT` replaced the result folder, its
+    report folder with it, and deleted the notes without a word. Refused now, naming
+    the file; figures and the page (PNG and report.html, what the report writes) do
+    not count."""
+    out = short_result.write(tmp_path / "out")
+    (out / "report").mkdir()
+    (out / "report" / "report.html").write_text("<p>page</p>")
+    (out / "report" / "daily_fluxes.png").write_bytes(b"\x89PNG")
+    (out / "report" / "notes.txt").write_text("keep me")
+    with pytest.raises(OutputError, match="holds 'report/notes.txt', which fluxpart did not "
+                                          "write there"):
+        short_result.write(out)
+    assert (out / "report" / "notes.txt").read_text() == "keep me" and _leftovers(out) == []
+    (out / "report" / "notes.txt").unlink()
+    short_result.write(out)
+    assert not (out / "report").exists()        # replaced whole with the result, as before
