@@ -79,6 +79,7 @@ from .store import (
     folder_mode,
     read_table,
     remove_stale,
+    set_mode,
     unreadable,
     write_table,
 )
@@ -591,7 +592,7 @@ def _write_network_locked(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFra
         staging = Path(tempfile.mkdtemp(prefix=f".{folder}.", dir=out))
         files[folder] = {}
         try:
-            os.chmod(staging, folder_mode())  # mkdtemp makes it private (0700)
+            set_mode(staging, folder_mode())  # mkdtemp makes it private (0700)
             tables = _unify([_arrow_site(o, name) for o in done], name) if done else []
             for outcome, table in zip(done, tables, strict=True):
                 data = _parquet_bytes(table)

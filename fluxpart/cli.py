@@ -177,9 +177,19 @@ def _check_output_folder(out: Path, site_name=None) -> None:
 
     from .resultdir import replace_refusal
 
+    try:
+        here = Path.cwd().resolve()
+    except OSError:
+        # the shell's folder was deleted (e.g. replaced whole by another run): it cannot
+        # lie in --out, and only an absolute --out can be found (a relative one is named)
+        here = None
+        if not out.is_absolute():
+            raise FluxpartError(f"--out {str(out)!r} is relative to the current folder, "
+                                "which no longer exists (deleted or replaced while this "
+                                "shell was in it): cd to an existing folder, or give "
+                                "--out as an absolute path") from None
     out = out.absolute()
-    here = Path.cwd().resolve()
-    if out.resolve() == here or out.resolve() in here.parents:
+    if here is not None and (out.resolve() == here or out.resolve() in here.parents):
         # the folder is replaced whole: the process (and the user's shell) would be left
         # in a deleted folder, and demo's report then failed with a traceback
         raise FluxpartError(f"--out {str(out)!r} is the current folder or holds it; a result "
@@ -406,7 +416,7 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
-#: What a command stopped by Ctrl-C or SIGTERM leaves behind, by command ('' for the rest).
+#: What a command stopped by Ctrl-C, SIGTERM or SIGHUP leaves behind, by command ('' for the rest).
 _AFTER_STOP = {
     "": "an output folder holds its earlier content or a complete new result, never a mix",
     "batch": "each site's result folder holds its earlier content or a complete new result, "
@@ -424,16 +434,44 @@ _AFTER_STOP = {
 
 
 class _Terminated(BaseException):
-    """SIGTERM (``kill``, a batch scheduler's time limit) raised in the running command.
+    """SIGTERM (``kill``, a batch scheduler's time limit) or SIGHUP (the terminal or the
+    SSH session closed) raised in the running command.
 
     A BaseException like KeyboardInterrupt, so that it unwinds the same way: a result
     folder being staged is removed (:func:`fluxpart.resultdir.write_folder`) instead of
-    being left beside the output folder by a process killed outright.
+    being left beside the output folder by a process killed outright. ``signum`` is the
+    signal received (SIGTERM where raised without one).
     """
+
+    def __init__(self, signum=signal.SIGTERM):
+        super().__init__(signum)
+        self.signum = signum
 
 
 def _raise_terminated(signum, frame):
-    raise _Terminated
+    raise _Terminated(signum)
+
+
+#: How the stop message names each signal handled as :class:`_Terminated`.
+_STOP_NAMES = {signal.SIGTERM: "terminated (SIGTERM)"}
+if hasattr(signal, "SIGHUP"):          # POSIX only
+    _STOP_NAMES[signal.SIGHUP] = "hung up (SIGHUP: the terminal or session closed)"
+
+
+def _install_stop_handlers() -> dict:
+    """Handle SIGTERM, and SIGHUP where it has its default action, as :class:`_Terminated`.
+
+    SIGHUP's default action ends the process outright, like ``kill -9``: a terminal or SSH
+    session closed during ``run`` or ``report`` left the staging folder, and a report's lies
+    inside the result folder, which then failed its manifest check in ``verify``, ``load``
+    and ``diff``. A SIGHUP already ignored (``nohup``, ``disown`` under some shells) stays
+    ignored. Returns the handlers replaced, to be put back.
+    """
+    replaced = {signal.SIGTERM: signal.signal(signal.SIGTERM, _raise_terminated)}
+    hangup = getattr(signal, "SIGHUP", None)
+    if hangup is not None and signal.getsignal(hangup) is signal.SIG_DFL:
+        replaced[hangup] = signal.signal(hangup, _raise_terminated)
+    return replaced
 
 
 class _QuietWhenClosed:
@@ -511,6 +549,15 @@ def _parse(argv):
     return args
 
 
+def _cwd_gone() -> bool:
+    """Whether the process's current folder has been deleted."""
+    try:
+        os.getcwd()
+    except FileNotFoundError:
+        return True
+    return False
+
+
 def _too_long(error: OSError) -> str:
     """The message for a path the operating system refuses as too long (ENAMETOOLONG)."""
     name = str(error.filename or "")
@@ -532,11 +579,13 @@ def main(argv=None) -> int:
     args = _parse(argv)
     thresholds = gc.get_threshold()
     gc.set_threshold(*_GC_THRESHOLDS)
-    on_term = None
+    replaced = {}
     if threading.current_thread() is threading.main_thread():
-        on_term = signal.signal(signal.SIGTERM, _raise_terminated)
+        replaced = _install_stop_handlers()
     stdout = sys.stdout
-    sys.stdout = _QuietWhenClosed(stdout)
+    # started with standard output closed (`>&-`, some service managers): Python then has
+    # no sys.stdout, and the first print raised AttributeError, exit 1 whatever the verdict
+    sys.stdout = _QuietWhenClosed(stdout if stdout is not None else open(os.devnull, "w"))
     try:
         with warnings.catch_warnings():
             # the commands print a result's warnings themselves, once, in their output
@@ -560,14 +609,25 @@ def main(argv=None) -> int:
         print(f"error: interrupted (Ctrl-C); {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}",
               file=sys.stderr)
         return 130
-    except _Terminated:
-        print(f"error: terminated (SIGTERM); {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}",
-              file=sys.stderr)
-        return 128 + signal.SIGTERM
+    except _Terminated as stop:
+        said = _STOP_NAMES.get(stop.signum, f"stopped by signal {int(stop.signum)}")
+        try:
+            print(f"error: {said}; {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}",
+                  file=sys.stderr)
+        except OSError:
+            pass                    # a hung-up terminal takes no more output (EIO)
+        return 128 + int(stop.signum)
     except BrokenPipeError:          # output piped into e.g. `head`, which closed early
         sys.stderr.close()
         return 0
     except OSError as error:
+        if error.errno == errno.ENOENT and error.filename is None and _cwd_gone():
+            # os.getcwd() (Path.absolute, Path.resolve of a relative path) in a folder
+            # deleted while the shell was in it: a traceback before
+            print("error: the current folder no longer exists (deleted or replaced while "
+                  "this shell was in it), so relative paths cannot be found: cd to an "
+                  "existing folder, or give absolute paths", file=sys.stderr)
+            return 2
         if error.errno != errno.ENAMETOOLONG:
             raise
         # a path given on the command line (or a name derived from it) longer than the
@@ -577,8 +637,8 @@ def main(argv=None) -> int:
         return 2
     finally:
         sys.stdout = stdout
-        if on_term is not None:
-            signal.signal(signal.SIGTERM, on_term)
+        for signum, handler in replaced.items():
+            signal.signal(signum, handler)
         gc.set_threshold(*thresholds)
         if argv is None:
             gc.freeze()

@@ -25,7 +25,7 @@ from .errors import ConfigError
 from .responses import lloyd_taylor
 from .site import Site
 from .solar import potential_radiation
-from .store import file_mode
+from .store import file_mode, set_mode
 from .variables import to_canonical, vpd_from_rh
 
 __all__ = ["SITE", "compare_with_truth", "site", "site_year", "write_example"]
@@ -444,7 +444,7 @@ def _write_atomic(path: Path, text: str) -> None:
     try:
         with handle:
             handle.write(text)
-        os.chmod(handle.name, file_mode())       # temporary files are created private
+        set_mode(handle.name, file_mode())       # temporary files are created private
         os.replace(handle.name, path)
     except BaseException:
         Path(handle.name).unlink(missing_ok=True)

@@ -52,7 +52,7 @@ import pandas as pd
 
 from .errors import FluxpartError, InputFileError, OutputError
 from .manifest import recorded_paths
-from .store import file_mode, remove_stale
+from .store import file_mode, remove_stale, set_mode
 from .units import KG_CARBON_PER_UMOL
 
 __all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf",
@@ -374,7 +374,7 @@ def write_netcdf(result, path) -> Path:
     os.close(handle)
     try:
         dataset.to_netcdf(temporary, engine=engine, format="NETCDF4")
-        os.chmod(temporary, file_mode())
+        set_mode(temporary, file_mode())
         os.replace(temporary, path)
     except OSError as error:        # a full disk, the file-size limit (ulimit -f), an I/O error
         Path(temporary).unlink(missing_ok=True)

@@ -34,6 +34,7 @@ import hashlib
 import json
 import os
 import platform
+import unicodedata
 from pathlib import Path
 
 from .errors import InputFileError
@@ -166,12 +167,30 @@ def without_paths(provenance: dict) -> dict:
 
 
 def recorded_path(directory, entry: dict) -> Path | None:
-    """Where a recorded ``path`` (relative to the result folder) points now, or None."""
+    """Where a recorded ``path`` (relative to the result folder) points now, or None.
+
+    The path is taken from the folder as spelled (``..`` removed by name, as it was
+    recorded); where nothing is there, from the folder's real place: a folder reached
+    through a symbolic link (``latest -> runs/2021/out``) has another parent than the
+    link's, and ``..`` leads to the real one (POSIX path resolution). A name with accented
+    letters is also looked for in its other Unicode normal form: macOS (HFS+) stores names
+    decomposed (NFD), so a bundle copied through a Mac holds ``grün.csv`` as other bytes
+    than those recorded (Unicode Standard Annex #15).
+    """
     text = entry.get("path") if isinstance(entry, dict) else None
     if not isinstance(text, str) or not text:
         return None
     path = Path(text)
-    return path if path.is_absolute() else Path(os.path.abspath(Path(directory) / path))
+    if path.is_absolute():
+        return path
+    spelled = Path(os.path.abspath(Path(directory) / path))
+    places = (Path(directory), Path(os.path.realpath(directory)))
+    for form in (text, *(unicodedata.normalize(f, text) for f in ("NFC", "NFD"))):
+        for place in places:
+            found = Path(os.path.abspath(place / form))
+            if found.exists():
+                return found
+    return spelled
 
 
 def recorded_paths(provenance: dict, directory) -> list[Path]:

@@ -26,7 +26,10 @@ Reading (:func:`read_folder`, used by ``fluxpart.load``, ``report`` and
 its recorded SHA-256, rows and columns, and the folder must hold nothing else
 than the manifest, its tables and the two unhashed entries it names (the run log
 and the ``report/`` folder). Otherwise the folder is refused, naming the file; a
-file that cannot be read at all (no permission) is an error naming it.
+file that cannot be read at all (no permission) is an error naming it. A listed file
+may be a symbolic link to a plain file (git-annex, DVC): its bytes are checked. What a
+report stopped outright left (``.report.staging-*``) is named but refuses nothing: the
+report is not hashed either.
 """
 
 from __future__ import annotations
@@ -66,13 +69,15 @@ from .store import (
     file_sha256,
     folder_mode,
     read_table,
+    set_mode,
     table_shape,
     unreadable,
     write_table,
 )
 
 __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_leftovers",
-           "folder_lock", "interrupted_writes", "lock_file", "make_staging", "read_folder",
+           "folder_identity", "folder_lock", "interrupted_writes", "lock_file", "make_staging",
+           "read_folder",
            "recover_missing",
            "replace_refusal", "swapped_in", "write_folder"]
 
@@ -362,7 +367,7 @@ def make_staging(directory) -> Path:
     staging = Path(tempfile.mkdtemp(prefix=f".{directory.name}.{_STAGING}",
                                     dir=directory.parent))
     try:
-        os.chmod(staging, folder_mode())
+        set_mode(staging, folder_mode())
     except OSError:
         shutil.rmtree(staging, ignore_errors=True)
         raise
@@ -458,6 +463,8 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
         return None
     if not directory.is_dir():
         return "exists and is not a folder (an existing file)"
+    if os.path.ismount(directory):
+        return _MOUNT_POINT.format(inside=str(directory / "result"))
     if not any(directory.iterdir()):
         return None
     if not (directory / marker).is_file():
@@ -470,12 +477,21 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
         return (f"holds {shown}, which fluxpart did not write there (an input file, a site "
                 f"config or notes put into {kind}?), and writing would replace the folder "
                 "whole and delete them: move them out of it")
+    if _read_only_mount(directory):
+        return ("is on a file system mounted read-only (a read-only share or mount, a disc), "
+                "where nothing can be written or removed")
     protected = _write_protected(directory)
     if protected is not None:
         return (f"is write-protected ({str(protected)!r} cannot be changed: kept read-only on "
                 "purpose?); the new one would be swapped in while the old one could not be "
                 "removed and would stay hidden beside it: make it writable (chmod -R u+w)")
     return other_site_reason(directory, site_name)
+
+
+#: Why a mount point is never replaced whole: renaming it fails (EBUSY, rename(2)).
+_MOUNT_POINT = ("is a mount point (a mounted drive, a network share or a container's volume), "
+                "which cannot be swapped for a new folder as a written folder is (rename "
+                "fails: device busy); give a folder inside it, e.g. {inside!r}")
 
 
 def _unlisted_entries(directory: Path, marker: str) -> list[str]:
@@ -487,8 +503,10 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
     a damaged manifest lets its own folder be rewritten but not the files a user put
     beside it (a truncated manifest let ``run --out`` delete an input file and notes
     moved into the folder, review round thirteen). A report folder: what is neither
-    `marker` nor a ``.png`` figure. Hidden entries (a file manager's ``.DS_Store``, an
-    interrupted writer's staging) are not counted.
+    `marker` nor a ``.png`` figure. What a file manager or a network file system leaves
+    (:func:`_disposable`) and an interrupted report's staging are not counted; other
+    hidden entries are the user's (a ``.git`` folder, R's ``.RData`` workspace saved
+    where R ran) and count: they had been deleted with the folder without a word.
     """
     try:
         names = sorted(path.name for path in directory.iterdir())
@@ -504,7 +522,29 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
             listed = {name for name in names if _run_writes(name)}
     else:
         listed = {marker} | {name for name in names if name.endswith(".png")}
-    return [name for name in names if name not in listed and not name.startswith(".")]
+    found = [name for name in names if name not in listed and not _disposable(name)
+             and not _report_leftover(directory / name)]
+    report = directory / REPORT_FOLDER
+    if marker == MANIFEST_FILE and REPORT_FOLDER in listed and report.is_dir() \
+            and not report.is_symlink():
+        # the report folder goes with the result folder it is in: a user's notes put
+        # beside the page were deleted by the next run without a word (`report` itself
+        # refuses to replace such a folder)
+        found += [f"{REPORT_FOLDER}/{name}" for name in _unlisted_entries(report, "report.html")]
+    return sorted(found)
+
+
+#: Hidden names that file managers and network file systems leave in any folder: macOS
+#: Finder's ``.DS_Store`` and AppleDouble ``._*`` files, KDE Dolphin's ``.directory``,
+#: NFS's ``.nfs*`` and FUSE's ``.fuse_hidden*`` stand-ins for files deleted while open.
+_DISPOSABLE_PREFIXES = ("._", ".nfs", ".fuse_hidden")
+_DISPOSABLE_NAMES = (".DS_Store", ".directory")
+
+
+def _disposable(name: str) -> bool:
+    """Whether `name` is what a file manager or network file system leaves in a folder
+    (its loss with a replaced folder costs nothing)."""
+    return name in _DISPOSABLE_NAMES or name.startswith(_DISPOSABLE_PREFIXES)
 
 
 #: The tables of a result folder other than the ``parameters_*`` ones.
@@ -519,6 +559,19 @@ def _run_writes(name: str) -> bool:
     stem, dot, suffix = name.rpartition(".")
     return bool(dot) and suffix == "parquet" and (stem in _RESULT_TABLES
                                                   or stem.startswith("parameters_"))
+
+
+def _read_only_mount(directory: Path) -> bool:
+    """Whether `directory` lies on a file system mounted read-only (POSIX statvfs
+    ``ST_RDONLY``), where a chmod, which the write-protected message asked for, cannot
+    help."""
+    flag = getattr(os, "ST_RDONLY", None)
+    if flag is None or not hasattr(os, "statvfs"):
+        return False
+    try:
+        return bool(os.statvfs(directory).f_flag & flag)
+    except OSError:
+        return False
 
 
 def _write_protected(directory: Path) -> Path | None:
@@ -646,6 +699,11 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
                 _write_tables(staging, directory, tables, site=site, config=config, seed=seed,
                               provenance=provenance, warnings=warnings)
         except OSError as error:
+            if error.errno == errno.EBUSY and directory.is_dir():
+                # a bind mount of a folder of the same file system: os.path.ismount does not
+                # see it, the swap's rename does
+                raise _refusal(directory, _MOUNT_POINT.format(
+                    inside=str(directory / "result"))) from None
             where = f" ({error.filename})" if error.filename else ""
             raise OutputError(f"writing the result folder {str(directory)!r} failed: "
                               f"{error.strerror or error}{where}; the earlier result, if any, "
@@ -690,8 +748,9 @@ class FolderProblem:
     kind : str
         ``"seal"`` (manifest edited), ``"format"``, ``"missing"``, ``"hash"``
         (bytes changed), ``"content"`` (rows or columns other than the manifest
-        records), ``"extra"`` (not listed in the manifest) or ``"entry"`` (a
-        malformed table entry).
+        records), ``"extra"`` (not listed in the manifest), ``"entry"`` (a
+        malformed table entry) or ``"leftover"`` (what an interrupted report left:
+        named, but no mismatch; :func:`read_folder` reads the folder).
     detail : str
         What was found.
     """
@@ -756,8 +815,11 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
         allowed_files.add(file)
         path = directory / file
         if not path.is_file():
-            problems.append(FolderProblem(file, "missing", "is listed in the manifest but "
-                                          "missing from the folder"))
+            detail = ("is a symbolic link to a file that is not there (content of a data store "
+                      "such as git-annex or DVC not fetched?)"
+                      if path.is_symlink() and not path.exists() else
+                      "is listed in the manifest but missing from the folder")
+            problems.append(FolderProblem(file, "missing", detail))
             continue
         actual = file_sha256(path)
         if actual != entry.get("sha256"):
@@ -771,24 +833,47 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
     except OSError as error:
         raise unreadable(directory, error) from None
     for path in entries:
-        if path.name in allowed_files and path.is_file() and not path.is_symlink():
+        if path.name in allowed_files and path.is_file():
+            # a symbolic link to a plain file passes: data stores such as git-annex and DVC
+            # keep each file as a link into their content store, and the hash and shape
+            # checks above read the bytes the link leads to
             continue
+        if path.name in allowed_files and path.is_symlink() and not path.exists() \
+                and path.name != MANIFEST_FILE and path.name != RUN_LOG:
+            continue                # a dangling link of a table: named as missing above
         if path.name in allowed_dirs and path.is_dir() and not path.is_symlink():
             continue
         if path.name in allowed_files or path.name in allowed_dirs:
             problems.append(FolderProblem(path.name, "extra", "has the name of a listed entry "
                                           "but is not a plain file or folder"))
             continue
+        if _report_leftover(path):
+            # the report is not hashed (report/ may hold anything), so what a report killed
+            # outright left is no change of the result: named, but the folder still checks
+            problems.append(FolderProblem(path.name + "/", "leftover",
+                                          "is what an interrupted `fluxpart report` left (not "
+                                          "part of the result, like report/); delete it or "
+                                          "draw the report again (which removes it)"))
+            continue
         if path.name.startswith(f".{REPORT_FOLDER}.") and path.is_dir():
             problems.append(FolderProblem(path.name + "/", "extra",
-                                          "is what an interrupted `fluxpart report` left; "
-                                          "delete it or draw the report again (which removes "
-                                          "it)"))
+                                          "is not listed in the manifest (the folder must hold "
+                                          "exactly the files its manifest lists)"))
             continue
         problems.append(FolderProblem(path.name + ("/" if path.is_dir() else ""), "extra",
                                       "is not listed in the manifest (the folder must hold "
                                       "exactly the files its manifest lists)"))
     return problems
+
+
+def _report_leftover(path: Path) -> bool:
+    """Whether `path` is a staging or retired folder of the ``report/`` folder beside it
+    (:func:`make_staging`, :func:`_swap_in`): what a report stopped outright (``kill -9``,
+    a power cut) leaves inside a result folder."""
+    name = path.name
+    prefixes = (f".{REPORT_FOLDER}.{_STAGING}", f".{REPORT_FOLDER}.{_RETIRED}")
+    return (any(name.startswith(prefix) and len(name) > len(prefix) for prefix in prefixes)
+            and path.is_dir() and not path.is_symlink())
 
 
 def _shape_problems(path: Path, file: str, entry: dict) -> list[FolderProblem]:
@@ -867,7 +952,7 @@ def read_folder(directory) -> tuple[dict, dict]:
     for attempt in range(3):
         before = _identity(directory)
         manifest = read_manifest(directory)
-        problems = check_folder(directory, manifest)
+        problems = [p for p in check_folder(directory, manifest) if p.kind != "leftover"]
         if problems and _identity(directory) != before and attempt < 2:
             continue                          # replaced while we read: read the new one
         if problems:
@@ -882,9 +967,18 @@ def read_folder(directory) -> tuple[dict, dict]:
     raise InputFileError(f"result folder {str(directory)!r} kept changing while being read")
 
 
-def _identity(directory: Path):
+def folder_identity(directory):
+    """The (device, inode) of the folder at `directory`, or None where there is none.
+
+    A writer replaces a result folder whole (:func:`swapped_in`), so the folder at the
+    same path then has another identity: a reader that finds it changed after reading
+    read parts of two results and reads again.
+    """
     try:
         status = os.stat(directory)
     except OSError:
         return None
     return (status.st_dev, status.st_ino)
+
+
+_identity = folder_identity

@@ -26,6 +26,7 @@ content and the library versions: same content, same file.
 
 from __future__ import annotations
 
+import errno
 import hashlib
 import json
 import os
@@ -39,7 +40,7 @@ import pyarrow.parquet as pq
 from .errors import InputFileError
 
 __all__ = ["atomic_write_bytes", "column_units", "file_mode", "file_sha256", "folder_mode",
-           "read_table", "remove_stale", "table_shape", "unreadable", "write_table"]
+           "read_table", "remove_stale", "set_mode", "table_shape", "unreadable", "write_table"]
 
 _SCHEMA_KEY = b"fluxpart"
 #: Facts of a frame's ``attrs`` that travel into the file metadata (set by the
@@ -73,6 +74,26 @@ def file_mode() -> int:
 def folder_mode() -> int:
     """Mode of a written result folder: what ``mkdir`` would give, 0o777 less the umask."""
     return 0o777 & ~_umask()
+
+
+def set_mode(path, mode: int) -> None:
+    """Give a file or folder just written `mode` (:func:`file_mode`, :func:`folder_mode`).
+
+    A file system without POSIX permission bits refuses the change: FAT and exFAT (a USB
+    stick, an SD card) mounted without ``quiet`` answer EPERM where the mode differs from
+    their fixed mask, and some network shares ENOTSUP. The file then keeps the mode the
+    file system gives it, as every file there does; before, the write failed
+    ("Operation not permitted") with nothing written.
+    """
+    try:
+        os.chmod(path, mode)
+    except OSError as error:
+        if error.errno not in _NO_MODE_BITS:
+            raise
+
+
+#: What chmod answers on a file system that keeps no POSIX permission bits.
+_NO_MODE_BITS = {errno.EPERM, errno.ENOTSUP, errno.EOPNOTSUPP, errno.ENOSYS}
 
 
 def unreadable(path, error: OSError) -> InputFileError:
@@ -167,7 +188,7 @@ def atomic_write_bytes(path, data: bytes) -> None:
             stream.write(data)
             stream.flush()
             os.fsync(stream.fileno())
-        os.chmod(temporary, file_mode())
+        set_mode(temporary, file_mode())
         os.replace(temporary, path)
     except BaseException:
         Path(temporary).unlink(missing_ok=True)

@@ -845,6 +845,14 @@ def _config_changes(path: Path, copy: Path | None, limit: int = 5) -> str:
     return "; changed since the run: " + ", ".join(parts) + more
 
 
+def _why_not_a_file(path: Path, hint: str = "") -> str:
+    """Why a path given as a file is none: a folder (the input's folder given for the file
+    was called missing) or nothing there."""
+    if path.is_dir():
+        return f"is a folder, not a file: give the file itself{hint}"
+    return "does not exist"
+
+
 def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: list):
     """Return (site config for the rerun, site config that locates the input, difference).
 
@@ -858,7 +866,7 @@ def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: l
         path = Path(given)
         if not path.is_file():
             raise InputFileError(f"verify: the site config {str(path)!r} given with --config "
-                                 "does not exist")
+                                 f"{_why_not_a_file(path)}")
         if file_sha256(path) == sha:
             return path, path, None
         copy = _recorded_copy(recorded, scratch)
@@ -937,7 +945,7 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
     for path in given:
         if not Path(path).is_file():
             raise InputFileError(f"verify: the input file {str(path)!r} given with --input "
-                                 "does not exist")
+                                 f"{_why_not_a_file(Path(path), ' (one --input per file)')}")
     if given and len(given) != len(wanted):
         raise InputFileError(f"verify: the result was computed from {len(wanted)} input "
                              f"file(s); give --input once for each ({len(given)} given)")
@@ -1095,6 +1103,138 @@ def remove_dead_scratch(root=None) -> list[str]:
     return removed
 
 
+def _rewritten_elsewhere(path: Path, index=None):
+    """A stored table that is Parquet but lacks fluxpart's schema metadata, read as
+    pandas reads it (its own metadata restores an index it wrote), or None; the
+    manifest's index column `index`, where read back as a plain column, made the index
+    again (a frame read without fluxpart and written with pandas' default index).
+
+    Such a file was read back and written again by another program with its values (a
+    spreadsheet tool, ``pandas.DataFrame.to_parquet``): verify said only that it was
+    unreadable, not whether its numbers changed.
+    """
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    from .store import _SCHEMA_KEY
+
+    try:
+        if _SCHEMA_KEY in (pq.read_schema(path).metadata or {}):
+            return None                 # fluxpart's own, damaged otherwise: named as such
+        frame = pd.read_parquet(path)
+    except (OSError, ValueError, ImportError, pa.ArrowException):
+        return None
+    if isinstance(index, str) and index in frame.columns and isinstance(frame.index,
+                                                                       pd.RangeIndex):
+        frame = frame.set_index(index)
+    return frame
+
+
+def _recorded_file_inside(path: Path, manifest: dict) -> str | None:
+    """What to say of an unlisted file in the result folder that is the run's own input
+    file or site config (its SHA-256 recorded in the manifest), or None.
+
+    Such a file was put into the folder to travel with it; it fails the folder check
+    like any other, but "not listed in the manifest" did not say it is the genuine input
+    or that moving it out, to its recorded place, is the whole fix.
+    """
+    provenance = manifest.get("provenance")
+    if not isinstance(provenance, dict) or not path.is_file() or path.is_symlink():
+        return None
+    recorded = []
+    for key, what in (("input", "input file"), ("site_config", "site config")):
+        entry = provenance.get(key)
+        if not isinstance(entry, dict):
+            continue
+        parts = entry.get("files") if isinstance(entry.get("files"), list) else [entry]
+        recorded += [(part, what) for part in parts if isinstance(part, dict)]
+    try:
+        if path.stat().st_size > 4 * 2**30:
+            return None
+        sha = file_sha256(path)
+    except (OSError, FluxpartError):
+        return None
+    for part, what in recorded:
+        if part.get("sha256") == sha:
+            place = part.get("path")
+            where = f" ({place!r} relative to the folder)" if isinstance(place, str) else ""
+            return (f"is the run's {what} (its recorded SHA-256), put into the result folder, "
+                    f"which must hold only the files its manifest lists: move it out to its "
+                    f"recorded place{where} and verify again")
+    return None
+
+
+def _read_stored(directory: Path):
+    """The manifest, the folder's mismatches with it, notes and the stored tables, all read
+    from one state of the folder.
+
+    A run replacing the folder while it is read swaps a new folder in whole
+    (:func:`fluxpart.resultdir.swapped_in`); a manifest read before that swap and tables
+    read after it were two genuine results compared as one (22 value differences on the
+    demo, "NOT reproduced"). The folder's identity (device, inode) is taken before and
+    after; where it changed, everything is read again (three tries, as
+    :func:`fluxpart.resultdir.read_folder` does).
+    """
+    from .resultdir import check_folder, folder_identity
+
+    for _attempt in range(3):
+        before = folder_identity(directory)
+        manifest = read_manifest(directory)
+        for key in ("config", "site", "provenance", "tables"):
+            if not isinstance(manifest.get(key), dict):
+                raise InputFileError(f"verify: {str(directory / 'manifest.json')!r} has no "
+                                     f"{key!r} entry; it is not a complete fluxpart manifest")
+        differences, notes = [], []
+        for problem in check_folder(directory, manifest):
+            if problem.kind == "leftover":
+                # an interrupted report's staging: not part of the result, as report/ is not
+                notes.append(problem.describe())
+                continue
+            kind = {"missing": "file", "entry": "file", "content": "file"}.get(problem.kind,
+                                                                              problem.kind)
+            table = next((n for n, e in manifest["tables"].items()
+                          if isinstance(e, dict) and e.get("file") == problem.file), "folder")
+            if kind == "hash":
+                entry = manifest["tables"][table]
+                differences.append(Difference(table, "hash", column=problem.file,
+                                              stored=str(entry.get("sha256")),
+                                              recomputed=file_sha256(directory / problem.file)))
+            elif kind == "file":
+                differences.append(Difference(table, "file", stored=problem.file,
+                                              recomputed=problem.detail))
+            else:
+                detail = problem.detail
+                if kind == "extra":
+                    detail = _recorded_file_inside(directory / problem.file.rstrip("/"),
+                                                   manifest) or detail
+                differences.append(Difference("folder", kind, column=problem.file,
+                                              stored=detail))
+        stored_tables = {}
+        for name, entry in sorted(manifest["tables"].items()):
+            path = directory / str(entry.get("file", "")) if isinstance(entry, dict) else None
+            if path is None or not path.is_file():
+                continue
+            try:
+                stored_tables[name] = read_table(path)
+            except (FluxpartError, OSError, ValueError) as error:
+                columns = entry.get("columns")
+                plain = _rewritten_elsewhere(path, columns[0] if isinstance(columns, list)
+                                             and columns else None)
+                if plain is None:
+                    differences.append(Difference(name, "file", stored=entry["file"],
+                                                  recomputed=f"is unreadable: {error}"))
+                    continue
+                stored_tables[name] = plain
+                stored_tables[name].attrs["rewritten"] = True
+                differences.append(Difference(name, "file", stored=entry["file"], recomputed=(
+                    "was rewritten by another program (e.g. pandas' to_parquet): fluxpart's "
+                    "metadata (units, descriptions, site) is gone; its values were compared "
+                    "with the rerun's (see the note)")))
+        if folder_identity(directory) == before:
+            break
+    return manifest, differences, notes, stored_tables
+
+
 def verify(directory, *, input_path=None, config_path=None, exact: bool = False
            ) -> VerifyReport:
     """Recompute a result folder from its manifest and compare everything.
@@ -1128,42 +1268,11 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     FluxpartError
         If the recorded input can no longer be read or processed.
     """
-    from .resultdir import check_folder, recover_missing
+    from .resultdir import recover_missing
 
     directory = Path(directory).absolute()
     recover_missing(directory)            # a write interrupted between its two renames
-    manifest = read_manifest(directory)
-    for key in ("config", "site", "provenance", "tables"):
-        if not isinstance(manifest.get(key), dict):
-            raise InputFileError(f"verify: {str(directory / 'manifest.json')!r} has no {key!r} "
-                                 "entry; it is not a complete fluxpart manifest")
-    differences = []
-    for problem in check_folder(directory, manifest):
-        kind = {"missing": "file", "entry": "file", "content": "file"}.get(problem.kind,
-                                                                          problem.kind)
-        table = next((n for n, e in manifest["tables"].items()
-                      if isinstance(e, dict) and e.get("file") == problem.file), "folder")
-        if kind == "hash":
-            entry = manifest["tables"][table]
-            differences.append(Difference(table, "hash", column=problem.file,
-                                          stored=str(entry.get("sha256")),
-                                          recomputed=file_sha256(directory / problem.file)))
-        elif kind == "file":
-            differences.append(Difference(table, "file", stored=problem.file,
-                                          recomputed=problem.detail))
-        else:
-            differences.append(Difference("folder", kind, column=problem.file,
-                                          stored=problem.detail))
-    stored_tables = {}
-    for name, entry in sorted(manifest["tables"].items()):
-        path = directory / str(entry.get("file", "")) if isinstance(entry, dict) else None
-        if path is None or not path.is_file():
-            continue
-        try:
-            stored_tables[name] = read_table(path)
-        except (FluxpartError, OSError, ValueError) as error:
-            differences.append(Difference(name, "file", stored=entry["file"],
-                                          recomputed=f"is unreadable: {error}"))
+    manifest, differences, folder_notes, stored_tables = _read_stored(directory)
     environment, code_changed = _environment(manifest)
     identity = result_identity(manifest)
     provenance = manifest["provenance"]
@@ -1175,20 +1284,23 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
             return VerifyReport(directory=directory, identity=identity, source="none",
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(differences), environment=tuple(environment),
-                                code_changed=code_changed, exact=exact, notes=())
+                                code_changed=code_changed, exact=exact,
+                                notes=tuple(folder_notes))
         raise InputFileError("verify: the folder matches its manifest (seal and every table's "
                              "SHA-256), but the manifest records neither an input file and site "
                              "config (fluxpart run) nor a demo seed (fluxpart demo), so the "
                              "result cannot be recomputed")
-    notes, rounding = [], []
+    notes, rounding = list(folder_notes), []
     stopped = interrupted_writes(directory)
     if stopped:
-        # a killed `fluxpart run` into this folder leaves the earlier result whole; without
-        # this note its verdict read as if the folder held that run's result
+        # a killed `fluxpart run` into this folder leaves the earlier result whole, or, killed
+        # between its swap and removing the old result (then in the staging folder), its own
+        # result: without this note the verdict read as if the folder surely held that run's
         notes.append(f"{', '.join(stopped)} beside the folder: a fluxpart run into it is "
                      "running now or was stopped before it finished; the folder holds the "
-                     "complete result named on the result: line, not that run's (the next "
-                     "run removes what a stopped one left)")
+                     "complete result named on the result: line, the earlier one or, if "
+                     "that run was stopped just after swapping its result in, its own (the "
+                     "next run removes what a stopped one left)")
     if (directory / "report").exists():
         notes.append("report/: the page and its figures are drawn from the tables and are not "
                      "covered by the manifest's hashes, so they are not verified; redraw them "
@@ -1256,6 +1368,11 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
             found = compare_tables(name, stored_tables[name], recomputed)
             rounding += [d for d in found if d.kind == "rounding"]
             differences += [d for d in found if d.kind != "rounding"]
+            if stored_tables[name].attrs.get("rewritten"):
+                notes.append(f"{name}: the rewritten file's values are "
+                             + ("bit-identical to the rerun's: only the file and its metadata "
+                                "changed" if not found else "not the rerun's where listed"))
+                continue
             if not found and (new_manifest["tables"][name]["sha256"]
                               != manifest["tables"][name].get("sha256")):
                 described = metadata_differences(directory / manifest["tables"][name]["file"],

@@ -604,3 +604,107 @@ def test_a_damaged_manifest_protects_the_files_a_user_put_beside_it(short_result
     short_result.write(out)
     assert read_folder(out)[0]["tables"] == read_folder(short_result.write(tmp_path / "b"))[0][
         "tables"]
+
+
+def test_a_mount_point_as_the_output_folder_is_refused_naming_a_folder_inside(
+        short_result, tmp_path, monkeypatch):
+    """A mount point (a container's volume `-v host:/out`, a mounted drive) cannot be
+    renamed (rename(2): EBUSY, "the directory is in use ... as a mount point"), so the swap
+    failed with "Device or resource busy" after the whole computation, no fix named. A
+    mount point seen by os.path.ismount is refused before writing; a bind mount within one
+    file system, which ismount does not see, is named from the swap's EBUSY; both name a
+    folder inside it, and nothing is left beside it."""
+    import errno
+
+    out = tmp_path / "volume"
+    out.mkdir()
+    real_ismount = os.path.ismount
+    monkeypatch.setattr(os.path, "ismount", lambda path: Path(path) == out or real_ismount(path))
+    with pytest.raises(OutputError, match="is a mount point.*give a folder inside it, e.g. "
+                       f"'{out / 'result'}'"):
+        short_result.write(out)
+    assert list(out.iterdir()) == [] and _leftovers(out) == []
+    monkeypatch.setattr(os.path, "ismount", real_ismount)
+
+    def busy(first, second):
+        raise OSError(errno.EBUSY, os.strerror(errno.EBUSY), str(second))
+
+    monkeypatch.setattr(resultdir, "_exchange", busy)
+    with pytest.raises(OutputError, match="is a mount point"):
+        short_result.write(out)
+    assert list(out.iterdir()) == [] and _leftovers(out) == []
+    written = short_result.write(out / "result")        # the folder named works
+    manifest, tables = read_folder(written)
+    assert sorted(tables) == sorted(manifest["tables"]) and "annual" in tables
+
+
+def test_a_users_hidden_files_in_a_result_folder_are_not_deleted(short_result, tmp_path):
+    """A `.git` folder (results tracked where they lie) or R's `.RData` workspace (R saves
+    it in the folder it ran in, R documentation of `save.image` (m)) inside a result
+    folder: the next run replaced the folder whole and deleted them without a word, hidden
+    entries not being counted. They now refuse the write, named, nothing changed; what
+    Finder (`.DS_Store`, AppleDouble `._*`), Dolphin (`.directory`) and an interrupted
+    report leave still does not."""
+    out = tmp_path / "out"
+    short_result.write(out)
+    (out / ".git").mkdir()
+    (out / ".git" / "HEAD").write_text("ref: refs/heads/main\n")
+    (out / ".RData").write_bytes(b"RDX3\n")
+    with pytest.raises(OutputError, match=r"holds '\.RData', '\.git', which fluxpart did not "
+                                          "write there"):
+        short_result.write(out)
+    assert (out / ".git" / "HEAD").read_text() == "ref: refs/heads/main\n"
+    assert (out / ".RData").read_bytes() == b"RDX3\n" and _leftovers(out) == []
+    (out / ".RData").unlink()
+    (out / ".git" / "HEAD").unlink()
+    (out / ".git").rmdir()
+    for name in (".DS_Store", "._annual.parquet", ".directory"):
+        (out / name).write_text("")
+    (out / ".report.staging-k1ll3d00").mkdir()
+    short_result.write(out)
+    assert not (out / ".DS_Store").exists()         # replaced whole, as before
+
+
+def test_a_result_on_a_read_only_mount_names_the_mount_not_chmod(short_result, tmp_path,
+                                                                 monkeypatch):
+    """A result folder on a file system mounted read-only (statvfs ST_RDONLY, POSIX) was
+    called write-protected with the fix `chmod -R u+w`, which a read-only mount refuses
+    too. It is now named as on a read-only mount; nothing is changed."""
+    out = short_result.write(tmp_path / "out")
+    before = read_folder(out)[0]["seal"]
+    real_statvfs = os.statvfs
+
+    class ReadOnly:
+        def __init__(self, status):
+            self._status = status
+            self.f_flag = status.f_flag | os.ST_RDONLY
+
+        def __getattr__(self, name):
+            return getattr(self._status, name)
+
+    monkeypatch.setattr(os, "statvfs", lambda path: ReadOnly(real_statvfs(path)))
+    with pytest.raises(OutputError, match="is on a file system mounted read-only") as refused:
+        short_result.write(out)
+    assert "chmod" not in str(refused.value)
+    monkeypatch.setattr(os, "statvfs", real_statvfs)
+    assert read_folder(out)[0]["seal"] == before and _leftovers(out) == []
+
+
+def test_a_users_file_in_the_report_folder_is_not_deleted_by_a_rerun(short_result, tmp_path):
+    """Notes put beside the report page (`OUT/report/notes.txt`): `report` refuses to
+    replace such a folder, but the next `run --out OUT` replaced the result folder, its
+    report folder with it, and deleted the notes without a word. Refused now, naming
+    the file; figures and the page (PNG and report.html, what the report writes) do
+    not count."""
+    out = short_result.write(tmp_path / "out")
+    (out / "report").mkdir()
+    (out / "report" / "report.html").write_text("<p>page</p>")
+    (out / "report" / "daily_fluxes.png").write_bytes(b"\x89PNG")
+    (out / "report" / "notes.txt").write_text("keep me")
+    with pytest.raises(OutputError, match="holds 'report/notes.txt', which fluxpart did not "
+                                          "write there"):
+        short_result.write(out)
+    assert (out / "report" / "notes.txt").read_text() == "keep me" and _leftovers(out) == []
+    (out / "report" / "notes.txt").unlink()
+    short_result.write(out)
+    assert not (out / "report").exists()        # replaced whole with the result, as before

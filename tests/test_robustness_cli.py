@@ -130,6 +130,55 @@ def test_sigterm_while_staging_is_one_line_and_leaves_no_staging(tmp_path):
     assert not any(".staging" in path.name for path in tmp_path.iterdir())
 
 
+_STAGED_RUN = (
+    "import os, signal, time, sys\n"
+    "import pandas as pd\n"
+    "import fluxpart.cli as cli, fluxpart.resultdir as resultdir\n"
+    "if sys.argv[2] == 'ignored':\n"
+    "    signal.signal(signal.SIGHUP, signal.SIG_IGN)\n"
+    "real_swap = resultdir._swap_in\n"
+    "def hung_up(staging, directory):\n"
+    "    os.kill(os.getpid(), signal.SIGHUP)\n"
+    "    time.sleep(0.5)\n"
+    "    real_swap(staging, directory)\n"
+    "resultdir._swap_in = hung_up\n"
+    "def command(args):\n"
+    "    resultdir.write_folder(args.out, {'annual': pd.DataFrame({'nee': [1.0]})},\n"
+    "                           site={}, config={}, seed=0, provenance={})\n"
+    "    return 0\n"
+    "cli._command_run = command\n"
+    "sys.exit(cli.main(['run', 'site.toml', '--out', sys.argv[1]]))\n")
+
+
+def test_sighup_while_staging_unwinds_like_sigterm_unless_ignored(tmp_path):
+    """The terminal or SSH session closing sends SIGHUP, whose default action (POSIX
+    signal(7): terminate) ended a run or report outright, like kill -9: the staging folder
+    stayed, and a report's lies inside the result folder. Now it unwinds as SIGTERM does:
+    exit 129 (128 + SIGHUP, the shell convention), one `error:` line, no staging left. A
+    SIGHUP ignored on purpose (`nohup`, which sets SIG_IGN) stays ignored: the run ends
+    normally with its result written."""
+    import os
+    import signal
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    env = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    out = tmp_path / "out"
+    done = subprocess.run([sys.executable, "-c", _STAGED_RUN, str(out), "default"], env=env,
+                          cwd=tmp_path, capture_output=True, text=True, timeout=120)
+    err = done.stderr.strip().splitlines()
+    assert done.returncode == 128 + signal.SIGHUP, done.stderr
+    assert len(err) == 1 and err[0].startswith("error: hung up (SIGHUP")
+    assert not out.exists()
+    assert not any(".staging" in path.name for path in tmp_path.iterdir())
+    done = subprocess.run([sys.executable, "-c", _STAGED_RUN, str(out), "ignored"], env=env,
+                          cwd=tmp_path, capture_output=True, text=True, timeout=120)
+    assert done.returncode == 0, done.stderr
+    assert (out / "manifest.json").is_file()
+    assert not any(".staging" in path.name for path in tmp_path.iterdir())
+
+
 def test_usage_mistakes_are_one_error_line(capsys):
     """A missing argument, an unknown command or option, a bad option value: one `error:`
     line naming the command and the mistake, exit 2 (before: argparse's usage block and a
@@ -283,3 +332,53 @@ def test_a_name_longer_than_the_system_allows_is_one_error_line(tmp_path, capsys
         assert len(err) == 1 and err[0].startswith("error: the path '"), (argv, err)
         assert "longer than this system allows" in err[0] and "aaaa" in err[0], (argv, err)
     assert sorted(p.name for p in tmp_path.iterdir()) == ["out", "site.toml"]
+
+
+def test_a_deleted_current_folder_is_one_error_line(tmp_path):
+    """A shell left in a folder that was deleted (a result folder replaced whole by another
+    run while a terminal was in it): getcwd(3) fails with ENOENT, and every command given
+    a relative path, `run` and `demo` even with absolute ones, ended in a traceback. Now one
+    `error:` line, exit 2; `verify` of an absolute path works on."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    script = ("import os, sys\n"
+              "import fluxpart.cli as cli\n"
+              "os.chdir(sys.argv[1]); os.rmdir(sys.argv[1])\n"
+              "sys.exit(cli.main(sys.argv[2:]))\n")
+    env = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    config = tmp_path / "site.toml"
+    config.write_text("[processing]\nseed = 0\n")
+    for number, argv in enumerate((["verify", "out"], ["report", "out"],
+                                   ["run", str(config), "--out", "out"],
+                                   ["demo", "--out", "out"])):
+        gone = tmp_path / f"gone{number}"
+        gone.mkdir()
+        done = subprocess.run([sys.executable, "-c", script, str(gone), *argv], env=env,
+                              cwd=tmp_path, capture_output=True, text=True, timeout=120)
+        err = done.stderr.strip().splitlines()
+        assert done.returncode == 2, done.stderr
+        assert len(err) == 1, err
+        assert ("the current folder no longer exists" in err[0]
+                or "is relative to the current folder, which no longer exists" in err[0]), err
+
+
+def test_a_closed_standard_output_keeps_the_exit_status(tmp_path):
+    """Started with standard output closed (`>&-`; POSIX sh: the descriptor is closed, and
+    Python then sets sys.stdout to None), a command's first print raised AttributeError:
+    a traceback and exit 1 after a successful `demo`, whatever the verdict of `verify`.
+    The output goes nowhere; the exit status is the command's own."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    env = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    out = tmp_path / "demo"
+    command = (f'"{sys.executable}" -m fluxpart demo --out "{out}" --quiet >&- ; echo "$?" >&2')
+    done = subprocess.run(["sh", "-c", command], env=env, cwd=tmp_path, capture_output=True,
+                          text=True, timeout=600)
+    assert done.stderr.strip().splitlines()[-1] == "0", done.stderr
+    assert "Traceback" not in done.stderr and (out / "manifest.json").is_file()

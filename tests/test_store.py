@@ -173,3 +173,33 @@ def test_columns_take_the_arrow_types_and_values_of_from_pandas():
     assert [f.type for f in converted.schema] == [f.type for f in reference.schema]
     assert converted.replace_schema_metadata(None).cast(
         reference.schema.remove_metadata()).equals(reference.replace_schema_metadata(None))
+
+
+def test_a_file_system_without_permission_bits_still_takes_the_result(tmp_path, monkeypatch):
+    """FAT and exFAT (a USB stick, an SD card) mounted without `quiet` answer chmod with
+    EPERM where the mode differs from their fixed mask (Linux vfat/exfat mount options
+    "quiet" (m)); some network shares ENOTSUP. The write then failed, "Operation not
+    permitted", nothing written. The file keeps the file system's mode; any other chmod
+    error (an I/O error) still fails the write, leaving no temporary file."""
+    import errno
+    import os
+
+    from fluxpart import resultdir
+    from fluxpart.store import atomic_write_bytes
+
+    answer = {"errno": errno.EPERM}
+
+    def no_mode_bits(path, mode, **kwargs):
+        raise OSError(answer["errno"], os.strerror(answer["errno"]), str(path))
+
+    monkeypatch.setattr(os, "chmod", no_mode_bits)
+    atomic_write_bytes(tmp_path / "a.bin", b"kept")
+    assert (tmp_path / "a.bin").read_bytes() == b"kept"
+    staging = resultdir.make_staging(tmp_path / "out")
+    assert staging.is_dir() and staging.name.startswith(".out.staging-")
+    write_table(_frame(), tmp_path / "t.parquet", _UNITS, "timeseries")
+    assert read_table(tmp_path / "t.parquet")["nee_filled"].iloc[0] == 1.5
+    answer["errno"] = errno.EIO
+    with pytest.raises(OSError, match="Input/output error"):
+        atomic_write_bytes(tmp_path / "b.bin", b"lost")
+    assert sorted(p.name for p in tmp_path.iterdir() if p.name.startswith(".b.bin")) == []

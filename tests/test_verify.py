@@ -848,3 +848,171 @@ def test_a_manifest_resaved_with_a_byte_order_mark_still_verifies(copy, capsys):
                      .encode("utf-8"))
     assert main(["verify", str(copy / "out"), "--quiet"]) == 1
     assert "manifest.json was edited after it was written" in capsys.readouterr().out
+
+
+def test_a_killed_reports_staging_is_a_note_not_a_difference(copy, capsys):
+    """A report stopped outright (``kill -9``, a closed terminal) leaves its staging folder
+    ``.report.staging-*`` inside the result folder. The report is not covered by the
+    manifest's hashes (report/ may hold anything), so that leftover is no change of the
+    result: verify named a genuine result "NOT reproduced" (exit 1) for it; now a note,
+    exit 0. Any other unlisted entry is still a difference (DESIGN.md §4.1: exit 1)."""
+    killed = copy / "out" / ".report.staging-k1ll3d00"
+    killed.mkdir()
+    (killed / "daily_fluxes.png").write_bytes(b"half a figure")
+    assert main(["verify", str(copy / "out")]) == 0
+    out = capsys.readouterr().out
+    assert "note: .report.staging-k1ll3d00/ is what an interrupted `fluxpart report` left" in out
+    (copy / "out" / ".report.notes").mkdir()
+    assert main(["verify", str(copy / "out"), "--quiet"]) == 1
+    assert ".report.notes/" in capsys.readouterr().out
+
+
+def test_a_run_replacing_the_folder_while_verify_reads_it_is_read_again(copy, monkeypatch):
+    """A run swaps a new result into the folder (a rename) just after verify checked the
+    old manifest and before it read the tables: verify compared one result's manifest with
+    the other's tables and said NOT reproduced (22 value differences on the demo, each
+    folder genuine). The folder's identity (POSIX stat st_dev, st_ino: a renamed-in folder
+    is another inode) changed, so everything is read again from the folder now there."""
+    from fluxpart import resultdir
+
+    other_config = make_bundle(copy, name="other.toml", draws=21)
+    process_site_config(other_config).write(copy / "other")
+    real = resultdir.check_folder
+    swapped = []
+
+    def check_then_swap(directory, manifest):
+        problems = real(directory, manifest)
+        if not swapped:
+            swapped.append(directory)
+            os.rename(copy / "out", copy / "old")
+            os.rename(copy / "other", copy / "out")
+        return problems
+
+    monkeypatch.setattr(resultdir, "check_folder", check_then_swap)
+    report = verify(copy / "out")
+    assert swapped and report.exit_code == 0, report.format()
+    assert report.identical
+    manifest = json.loads((copy / "out" / "manifest.json").read_text(encoding="utf-8"))
+    assert manifest["config"]["random_error_draws"] == 21      # the result now there
+
+
+def test_tables_kept_as_links_into_a_content_store_verify(copy, capsys):
+    """git-annex and DVC keep each file of a tracked folder as a symbolic link into their
+    content store (git-annex walkthrough, "adding files" (m); DVC's `cache.type = symlink`
+    (m)). A genuine result checked out so was "NOT reproduced", every table and the
+    manifest named as "not a plain file"; the hashes read through the links match, so it
+    is reproduced. A link whose content was not fetched is named once, as such."""
+    store = copy / "store"
+    store.mkdir()
+    folder = copy / "out"
+    for path in sorted(folder.iterdir()):
+        if path.suffix == ".parquet" or path.name == "manifest.json":
+            kept = store / file_sha256(path)
+            path.rename(kept)
+            path.symlink_to(os.path.relpath(kept, folder))
+    assert main(["verify", str(folder), "--quiet"]) == 0
+    assert capsys.readouterr().out.startswith("bit-identical")
+    (store / file_sha256((folder / "daily.parquet").resolve())).unlink()
+    assert main(["verify", str(folder), "--quiet"]) == 1
+    out = capsys.readouterr().out
+    assert "1 difference(s)" in out and "daily.parquet is a symbolic link to a file that is "\
+        "not there" in out
+
+
+def test_a_folder_given_as_input_or_config_is_named_as_a_folder(bundle, capsys):
+    """`--input DIR` (the input's folder for the file) was refused as "does not exist",
+    though the folder is there; the message now says it is a folder (POSIX: a directory
+    is not a regular file). Nothing is recomputed (exit 2, one `error:` line)."""
+    folder = str(bundle / "out")
+    assert main(["verify", folder, "--input", str(bundle)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "given with --input is a folder, not a file" in err[0]
+    assert main(["verify", folder, "--config", str(bundle)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "given with --config is a folder, not a file" in err[0]
+    assert main(["verify", folder, "--input", str(bundle / "absent.csv")]) == 2
+    assert "does not exist" in capsys.readouterr().err
+
+
+def test_a_table_rewritten_by_pandas_says_whether_its_values_changed(copy, capsys):
+    """A table read and written back with pandas (`read_parquet` then `to_parquet`,
+    pandas' own default RangeIndex) loses fluxpart's metadata: verify said only that it
+    was unreadable, not whether the numbers changed. Now it compares the values pandas
+    reads (pandas documents the round trip of values and dtypes through pyarrow) with the
+    rerun: bit-identical values are said to be so; one changed value is located. The
+    verdict stays NOT reproduced (exit 1): the file is not the one written."""
+    folder = copy / "out"
+    pd.read_parquet(folder / "annual.parquet").to_parquet(folder / "annual.parquet")
+    assert main(["verify", str(folder)]) == 1
+    out = capsys.readouterr().out
+    assert "annual.parquet was rewritten by another program" in out
+    assert "the rewritten file's values are bit-identical to the rerun's" in out
+    daily = pd.read_parquet(folder / "daily.parquet")
+    daily.loc[daily.index[3], "nee"] += 1.0
+    daily.to_parquet(folder / "daily.parquet")
+    assert main(["verify", str(folder)]) == 1
+    out = capsys.readouterr().out
+    assert "column 'nee' at date=" in out and "(1 row differs" in out
+    assert "daily: the rewritten file's values are not the rerun's where listed" in out
+
+
+def test_a_result_reached_through_a_symbolic_link_finds_its_input(bundle, tmp_path, capsys):
+    """`latest -> /runs/2021/out` from another folder: the input recorded as
+    `../tower.csv` was looked for beside the link (the path's `..` taken by name), said
+    missing, exit 2; `..` of the real folder leads to its real parent (POSIX path
+    resolution), where the input is."""
+    elsewhere = tmp_path / "shortcuts"
+    elsewhere.mkdir()
+    link = elsewhere / "latest"
+    link.symlink_to(bundle / "out", target_is_directory=True)
+    assert not (elsewhere / "tower.csv").exists()
+    assert main(["verify", str(link), "--quiet"]) == 0
+    assert capsys.readouterr().out.startswith("bit-identical")
+
+
+def test_a_staging_folder_beside_the_result_is_noted_without_claiming_whose(copy, capsys):
+    """A run killed after swapping its result in but before removing the old one (the
+    swap exchanges the two folders: the staging name then holds the earlier result) leaves
+    the new result in the folder; the note said the folder held "not that run's" result,
+    wrong in that case. It now names both possibilities; the verdict is the folder's."""
+    staging = copy / ".out.staging-k1ll3d00"
+    staging.mkdir()
+    (staging / "annual.parquet").write_bytes(b"half of the earlier result")
+    assert main(["verify", str(copy / "out")]) == 0
+    out = capsys.readouterr().out
+    assert ".out.staging-k1ll3d00 beside the folder" in out
+    assert "not that run's" not in out and "just after swapping its result in, its own" in out
+
+
+def test_an_input_name_decomposed_by_a_mac_copy_is_found(tmp_path, capsys):
+    """macOS (HFS+) stores file names decomposed (Unicode normal form NFD, Unicode Standard
+    Annex #15: "ü" as "u" + U+0308), so `grün.csv` copied through a Mac is another byte
+    string than the composed (NFC) name recorded: verify said the input "does not exist"
+    beside a file that looks identical. The other normal form is looked for too."""
+    import unicodedata
+
+    config = make_bundle(tmp_path)
+    composed = unicodedata.normalize("NFC", "grün.csv")
+    (tmp_path / "tower.csv").rename(tmp_path / composed)
+    config.write_text(config.read_text().replace('path = "tower.csv"', f'path = "{composed}"'))
+    process_site_config(config).write(tmp_path / "out")
+    decomposed = unicodedata.normalize("NFD", composed)
+    assert decomposed != composed
+    (tmp_path / composed).rename(tmp_path / decomposed)
+    assert main(["verify", str(tmp_path / "out"), "--quiet"]) == 0
+    assert capsys.readouterr().out.startswith("bit-identical")
+
+
+def test_the_input_put_into_the_result_folder_is_named_as_the_input(copy, capsys):
+    """A result folder sent with its input file inside it: verify called it "not listed in
+    the manifest", like any stray file, without saying it is the genuine input (SHA-256
+    from hashlib equal to the recorded one) or that moving it to its recorded place is the
+    fix. The verdict is unchanged (exit 1): the folder is not the one written; a file
+    that is not the input is still only "not listed"."""
+    shutil.copy(copy / "tower.csv", copy / "out" / "tower.csv")
+    (copy / "out" / "notes.txt").write_text("mine\n")
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert ("tower.csv is the run's input file (its recorded SHA-256), put into the result "
+            "folder") in out and "'../tower.csv' relative to the folder" in out
+    assert "notes.txt is not listed in the manifest" in out
