@@ -246,6 +246,7 @@ from trial_scoring import (  # noqa: E402
     fluxpart_cli,
     misses,
     print_flux_table,
+    print_table,
     save_scores,
     summary_cells,
     summary_header,
@@ -943,26 +944,6 @@ def print_row(row):
         f"{f} {row[f + '_err_night']:+.1f}/{row[f + '_err_day']:+.1f}" for f in FLUXES[1:]))
     m = misses(row)
     print(f"   MISSES: {'; '.join(m) if m else 'none'}")
-
-
-def print_table(rows):
-    """Per flux: median and worst |error| (g C m-2, %), coverage, median |error| / sigma."""
-    print(f"\n{len(rows)} complete site-years")
-    print(f"{'flux':15s} {'med|err|':>9s} {'worst':>8s} {'med|%|':>7s} {'worst%':>7s} "
-          f"{'in 95%':>7s} {'|err|/sig':>9s} {'in target':>9s}")
-    for f in FLUXES:
-        err = np.abs([r[f + "_err"] for r in rows])
-        rel = np.abs([r[f + "_rel"] for r in rows])
-        ratio = np.median([abs(r[f + "_err"]) / max(r[f + "_halfwidth"] / 1.96, 1e-9)
-                           for r in rows])
-        inside = sum(bool(r[f + "_in"]) for r in rows)
-        target = int((err <= 15).sum()) if f == "nee" else int(
-            (rel <= {"gpp_nighttime": 5, "reco_nighttime": 5}.get(f, 8)).sum())
-        print(f"{f:15s} {np.median(err):9.1f} {err.max():8.1f} {np.median(rel):7.1f} "
-              f"{rel.max():7.1f} {inside:4d}/{len(rows):<2d} {ratio:9.2f} {target:6d}/{len(rows)}")
-    us = [abs(r["ustar_rel"]) <= 20 for r in rows]
-    print(f"u* within 20 %: {sum(us)} of {len(rows)}; median "
-          f"{np.median([r['ustar_rel'] for r in rows]):+.1f} %")
 
 
 def main(argv=None):

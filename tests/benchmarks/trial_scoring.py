@@ -1,4 +1,4 @@
-"""Scoring shared by the independent known-truth trials (``trial_third.py``, ``trial_fourth.py``).
+"""Scoring shared by the independent known-truth trials (``trial_third.py`` to ``trial_ninth.py``).
 
 Only the scoring is shared: each trial keeps its own weather, flux physics and file layouts,
 so that the trials stay independent of each other and of ``fluxpart.scenarios``.
@@ -131,3 +131,23 @@ def summary_cells(r, width):
             f"{r['reco_nighttime_rel']:+7.1f} {yn('reco_nighttime'):>3s} "
             f"{r['gpp_daytime_rel']:+7.1f} {yn('gpp_daytime'):>3s} "
             f"{r['reco_daytime_rel']:+7.1f} {yn('reco_daytime'):>3s}")
+
+
+def print_table(rows):
+    """Per flux: median and worst |error| (g C m-2, %), coverage, median |error| / sigma."""
+    print(f"\n{len(rows)} complete site-years")
+    print(f"{'flux':15s} {'med|err|':>9s} {'worst':>8s} {'med|%|':>7s} {'worst%':>7s} "
+          f"{'in 95%':>7s} {'|err|/sig':>9s} {'in target':>9s}")
+    for f in FLUXES:
+        err = np.abs([r[f + "_err"] for r in rows])
+        rel = np.abs([r[f + "_rel"] for r in rows])
+        ratio = np.median([abs(r[f + "_err"]) / max(r[f + "_halfwidth"] / 1.96, 1e-9)
+                           for r in rows])
+        inside = sum(bool(r[f + "_in"]) for r in rows)
+        target = int((err <= 15).sum()) if f == "nee" else int(
+            (rel <= {"gpp_nighttime": 5, "reco_nighttime": 5}.get(f, 8)).sum())
+        print(f"{f:15s} {np.median(err):9.1f} {err.max():8.1f} {np.median(rel):7.1f} "
+              f"{rel.max():7.1f} {inside:4d}/{len(rows):<2d} {ratio:9.2f} {target:6d}/{len(rows)}")
+    us = [abs(r["ustar_rel"]) <= 20 for r in rows]
+    print(f"u* within 20 %: {sum(us)} of {len(rows)}; median "
+          f"{np.median([r['ustar_rel'] for r in rows]):+.1f} %")
