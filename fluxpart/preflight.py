@@ -531,6 +531,47 @@ def _long_night_gaps(index: pd.DatetimeIndex, nee: np.ndarray, is_night: np.ndar
         "over them are weak evidence (share_filled_c in annual.parquet)"), False)]
 
 
+def _long_driver_gaps(index: pd.DatetimeIndex, frame: pd.DataFrame, nee: np.ndarray,
+                      interval_minutes: float, sources=None) -> list:
+    """Gaps of one driver longer than the quality-A window while NEE was measured.
+
+    The drivers' gaps are filled by marginal distribution sampling too (longer than
+    ``gapfill_interpolation_hours``), from windows widened up to 140 days (quality C,
+    Reichstein et al. 2005, the flow chart's widening): over weeks without a probe the
+    respiration temperature, and the Rg, Tair and VPD that the NEE fills are matched on,
+    are other weeks' values. An outage of every sensor is named by :func:`_long_gaps`;
+    a driver whose own outage lies where NEE was measured for at least half its records
+    was silent (review round eighteen: 60 days without the soil probe moved the
+    nighttime Reco of those days by -7 %).
+    """
+    out = []
+    for name in ("tsoil", "tair", "vpd", "rg"):
+        if name not in frame.columns:
+            continue
+        values = frame[name].to_numpy(dtype=float)
+        if not np.isfinite(values).any():
+            continue
+        starts, records = gap_runs(~np.isfinite(values))
+        lengths = records * interval_minutes / 1440.0
+        measured = np.array([np.isfinite(nee[a:a + n]).mean() for a, n in
+                             zip(starts, records, strict=True)]) if starts.size else starts
+        long = np.flatnonzero((lengths > QUALITY_A_WINDOW_DAYS) & (measured >= 0.5))
+        if long.size == 0:
+            continue
+        longest = long[np.argmax(lengths[long])]
+        first = index[starts[longest]]
+        last = index[starts[longest] + records[longest] - 1]
+        column = (sources or {}).get(name, name)
+        out.append(Finding("gap filling (drivers)", (
+            f"{column!r} ({name}) has {long.size} gap(s) longer than "
+            f"{QUALITY_A_WINDOW_DAYS:g} days while NEE was measured, the longest "
+            f"{lengths[longest]:.1f} days ({first:%Y-%m-%d} .. {last:%Y-%m-%d}): filled from "
+            f"other weeks or seasons (quality C, {name}_fill_quality in timeseries.parquet), so "
+            "the fluxes that rest on it there (Reco where it drives respiration, NEE fills "
+            "matched on it) are weak evidence"), False))
+    return out
+
+
 def _dark_rg(frame: pd.DataFrame, potential, config) -> list:
     """Rg that stays above the night threshold while the sun is down (an offset)."""
     if "rg" not in frame.columns:
@@ -795,6 +836,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     long_gaps = _long_gaps(index, nee, interval_minutes)
     # a night stretch inside a gap of the whole record is named by that gap already
     findings += long_gaps or _long_night_gaps(index, nee, is_night)
+    findings += _long_driver_gaps(index, frame, nee, interval_minutes, sources)
     findings += _missing_ustar(index, night_measured, ustar)
     findings += ustar_findings
     if span_days < 365.0:

@@ -278,3 +278,29 @@ def test_a_fixed_respiration_temperature_without_values_is_a_fatal_finding(demo_
     assert finding.fatal and "respiration_driver = 'tsoil'" in finding.message
     _, findings = check_record(frame, demo.site(), Config())       # auto: air temperature
     assert "respiration temperature" not in _stages(findings)
+
+
+def test_a_long_outage_of_one_driver_is_named_not_an_outage_of_every_sensor(demo_frame):
+    """A driver's own gap longer than the quality-A window (28 days) while NEE was measured
+    is filled from other weeks or seasons (quality C, the widening of the gap-filling flow
+    chart, Reichstein et al. 2005): it is named with its column and dates. A gap of every
+    sensor is named once, as NEE's (no second finding for the drivers), and the invented
+    demo year without either has no such finding."""
+    def driver_findings(frame):
+        _, findings = check_record(frame, demo.site())
+        return [f for f in findings if f.stage == "gap filling (drivers)"]
+
+    assert driver_findings(demo_frame) == []
+    probe_out = demo_frame.copy()
+    window = (probe_out.index >= "2021-06-01") & (probe_out.index < "2021-08-01")
+    probe_out.loc[window, "tsoil"] = np.nan
+    found = driver_findings(probe_out)
+    assert len(found) == 1 and not found[0].fatal
+    assert "'tsoil'" in found[0].message and "61.0 days" in found[0].message
+    assert "2021-06-01 .. 2021-07-31" in found[0].message
+    short = demo_frame.copy()
+    short.loc[(short.index >= "2021-06-01") & (short.index < "2021-06-20"), "tsoil"] = np.nan
+    assert driver_findings(short) == []
+    outage = probe_out.copy()
+    outage.loc[window, ["nee", "rg", "tair", "vpd", "ustar"]] = np.nan
+    assert driver_findings(outage) == []
