@@ -321,29 +321,6 @@ def _ustar_thresholds(frame, screened, is_night, site, config):
     return table, found.bootstrap, central, scenarios
 
 
-def _ustar_warnings(table, config) -> list:
-    """Warnings for years whose u* threshold was not detected from their seasons."""
-    out = []
-    if (table["source"] == "fallback").any():
-        years = sorted(set(table.loc[table["source"] == "fallback", "year"]))
-        out.append(f"u* threshold not detectable in {', '.join(map(str, years))}: the fixed "
-                   f"ustar_threshold = {config.ustar_threshold} m s-1 was used there")
-    pooled = table[table["source"] == "pooled_year"]
-    if len(pooled):
-        out.append("u* threshold: no season gave one in " + ", ".join(
-            f"{year} ({threshold:.3f} m s-1)" for year, threshold in zip(
-                pooled["year"], pooled["threshold"], strict=True))
-            + "; it was found from each year's night records pooled as one season, which "
-            "assumes one threshold for the year")
-    borrowed = table[table["source"] == "nearest_year"]
-    if len(borrowed):
-        out.append("u* threshold not detectable in " + "; ".join(
-            f"{year}: {reason.split(',')[0]} ({threshold:.3f} m s-1) was used there (the same "
-            "tower and canopy)" for year, reason, threshold in zip(
-                borrowed["year"], borrowed["reason"], borrowed["threshold"], strict=True)))
-    return out
-
-
 def _geometry_and_screening(frame, site, config, interval):
     geometry = solar.solar_geometry(frame.index, site, interval_minutes=interval)
     potential = geometry["potential_radiation"].to_numpy()
@@ -692,7 +669,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     ustar_table, ustar_draws, central, scenario_thresholds = _ustar_thresholds(
         frame, screened, is_night, site, config)
     step("u* threshold")
-    warnings.extend(_ustar_warnings(ustar_table, config))
+    warnings.extend(ustar.source_notes(ustar_table, config.ustar_threshold))
 
     filled_drivers = gapfill.fill_drivers(
         screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days,

@@ -53,6 +53,7 @@ __all__ = [
     "detect_threshold",
     "moving_point_threshold",
     "nearest_detected_year",
+    "source_notes",
 ]
 
 #: Season names in table order.
@@ -660,6 +661,45 @@ def nearest_detected_year(thresholds: pd.Series) -> dict:
     for year in years[~found]:
         distance = np.abs(donors - year)
         out[int(year)] = int(donors[np.flatnonzero(distance == distance.min())[0]])
+    return out
+
+
+def source_notes(table: pd.DataFrame, fixed_threshold: float) -> list:
+    """Warnings for the years whose threshold was not detected from their own seasons.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        The run's u* table (``ustar.parquet``): ``year``, ``period``, ``threshold``
+        [m s-1], ``reason`` and ``source`` (``"fallback"``, ``"pooled_year"``,
+        ``"nearest_year"``, ``"detected"`` or ``"none"``).
+    fixed_threshold : float
+        ``Config.ustar_threshold`` [m s-1], the fall-back.
+
+    Returns
+    -------
+    list of str
+        One text per kind of source that is not a seasonal detection; empty where every
+        year was detected from its seasons.
+    """
+    out = []
+    if (table["source"] == "fallback").any():
+        years = sorted(set(table.loc[table["source"] == "fallback", "year"]))
+        out.append(f"u* threshold not detectable in {', '.join(map(str, years))}: the fixed "
+                   f"ustar_threshold = {fixed_threshold} m s-1 was used there")
+    pooled = table[table["source"] == "pooled_year"]
+    if len(pooled):
+        out.append("u* threshold: no season gave one in " + ", ".join(
+            f"{year} ({threshold:.3f} m s-1)" for year, threshold in zip(
+                pooled["year"], pooled["threshold"], strict=True))
+            + "; it was found from each year's night records pooled as one season, which "
+            "assumes one threshold for the year")
+    borrowed = table[table["source"] == "nearest_year"]
+    if len(borrowed):
+        out.append("u* threshold not detectable in " + "; ".join(
+            f"{year}: {reason.split(',')[0]} ({threshold:.3f} m s-1) was used there (the same "
+            "tower and canopy)" for year, reason, threshold in zip(
+                borrowed["year"], borrowed["reason"], borrowed["threshold"], strict=True)))
     return out
 
 

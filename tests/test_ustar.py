@@ -528,7 +528,7 @@ def test_pooled_year_threshold_reaches_the_table_and_warnings():
     usable night records the test needs)."""
     from fluxpart import demo
     from fluxpart.config import Config
-    from fluxpart.pipeline import _geometry_and_screening, _ustar_thresholds, _ustar_warnings
+    from fluxpart.pipeline import _geometry_and_screening, _ustar_thresholds
 
     frame, _ = demo.site_year(seed=1)
     rng = np.random.default_rng(3)
@@ -544,6 +544,6 @@ def test_pooled_year_threshold_reaches_the_table_and_warnings():
     assert central.to_numpy() == pytest.approx(yearly["threshold"].to_numpy())
     assert central.to_numpy() != pytest.approx(config.ustar_threshold)
     assert all(np.isfinite(values).all() for values in scenarios.values())
-    text = _ustar_warnings(table, config)
+    text = ustar.source_notes(table, config.ustar_threshold)
     assert len(text) == 1 and "pooled as one season" in text[0]
     assert "fixed ustar_threshold" not in text[0]
