@@ -675,9 +675,14 @@ def _ustar(index, usable_night, latitude, config) -> tuple:
         if mine.empty or mine.max() < needed:
             years.add(int(year))
     # since 0.17.0 such a year takes the threshold detected in the nearest year with one
-    # (ustar.nearest_detected_year), the fixed ustar_threshold only where no year has one
+    # (ustar.nearest_detected_year), the fixed ustar_threshold only where no year has one;
+    # since 0.20.0, where no season of any year can, each year's nights are first tested
+    # pooled as one season (ustar._pooled_years), which this count cannot foretell
     fixed = f"the fixed ustar_threshold = {config.ustar_threshold:g} m s-1"
-    fallback = (f"{fixed} would be used" if len(years) == len(all_years) else
+    fallback = ("each year's night records would be tested pooled as one season (the u* "
+                "table's source pooled_year), a year that gives none so taking the nearest "
+                f"year's threshold; where no year gives one, {fixed} would be used"
+                if len(years) == len(all_years) else
                 f"the threshold detected in the nearest year with one would be used ({fixed} "
                 "if none has)")
     for year in sorted(years):
