@@ -662,7 +662,10 @@ def _ustar(index, usable_night, latitude, config) -> tuple:
     if config.ustar_method == "fixed":
         return [], set()
     if config.ustar_method == "change_point":
-        needed = _CHANGE_POINT_BINS * _PER_CLASS
+        # each of the season's temperature strata needs its own bins (ustar.
+        # change_point_threshold stratifies like the moving point test and does not merge
+        # strata): 150 per season had been named, and the run then fell back silently
+        needed = config.ustar_temperature_classes * _CHANGE_POINT_BINS * _PER_CLASS
     else:
         needed = config.ustar_temperature_classes * config.ustar_classes * _PER_CLASS
     seasons = assign_seasons(index, latitude)
