@@ -283,13 +283,17 @@ def _command_check(args) -> int:
     refuse = config.clock_check == "refuse"
     problems = [f"{text}{' (run stops)' if refuse else ''}"
                 for text in (verdict.problems if verdict is not None else ())]
-    problems += [f"{finding}{' (run stops)' if finding.fatal else ''}" for finding in findings]
     counts = thresholds = None
+    stopped = []
     if not any(finding.fatal for finding in findings):
         try:
             counts, thresholds = screening_summary(frame, site_config.site, config)
         except FluxpartError as error:             # run would stop in the u* stage
-            problems.append(f"u* threshold: {error} (run stops)")
+            stopped.append(f"u* threshold: {error} (run stops)")
+    if thresholds is not None:
+        findings = _without_detected_years(findings, thresholds)
+    problems += [f"{finding}{' (run stops)' if finding.fatal else ''}" for finding in findings]
+    problems += stopped
     if thresholds is not None:
         fallback = sorted(set(thresholds.loc[thresholds["source"] == "fallback", "year"]))
         if fallback and not any(f.stage == "u* threshold" for f in findings):
@@ -311,6 +315,21 @@ def _command_check(args) -> int:
     else:
         print("\nscreening and u* threshold: not estimated (run would stop; see the problems)")
     return 1 if (problems or report.warnings) else 0
+
+
+def _without_detected_years(findings, thresholds) -> list:
+    """`findings` without the preflight's u* finding of a year whose seasons gave a threshold.
+
+    The preflight counts a season's night records against what the detector needs with all
+    its temperature classes (:func:`fluxpart.preflight.preflight`); the moving point test
+    merges classes down to one where it cannot resolve them, so a season of fewer records
+    can still give a threshold. Where the u* table shows the year's threshold detected
+    from its own seasons, the finding that it would not be is dropped.
+    """
+    years = thresholds[(thresholds["period"] == "year") & (thresholds["source"] == "detected")]
+    detected = {f"{int(year)}:" for year in years["year"]}
+    return [finding for finding in findings
+            if finding.stage != "u* threshold" or finding.message.split(" ", 1)[0] not in detected]
 
 
 class _Parser(argparse.ArgumentParser):

@@ -89,6 +89,7 @@ class Config:
     ustar_distinct_seasons : str
         What a year whose seasons' u* thresholds clearly differ (two seasons'
         bootstrap 5–95 % ranges apart and the higher more than 20 % above the year's,
+        or the ranges more than 20 % apart and the higher above the year's at all,
         :mod:`fluxpart.ustar_seasonal`) is filtered with. ``"own_threshold"``
         (default since 0.11.0): each season at the larger of its own threshold and
         the year's, the run with the year's threshold on every night joining the u*

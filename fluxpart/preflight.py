@@ -703,7 +703,10 @@ def _ustar(index, usable_night, latitude, config) -> tuple:
     if config.ustar_method == "fixed":
         return [], set()
     if config.ustar_method == "change_point":
-        needed = _CHANGE_POINT_BINS * _PER_CLASS
+        # each of the season's temperature strata needs its own bins (ustar.
+        # change_point_threshold stratifies like the moving point test and does not merge
+        # strata): 150 per season had been named, and the run then fell back silently
+        needed = config.ustar_temperature_classes * _CHANGE_POINT_BINS * _PER_CLASS
     else:
         needed = config.ustar_temperature_classes * config.ustar_classes * _PER_CLASS
     seasons = assign_seasons(index, latitude)
@@ -716,9 +719,14 @@ def _ustar(index, usable_night, latitude, config) -> tuple:
         if mine.empty or mine.max() < needed:
             years.add(int(year))
     # since 0.17.0 such a year takes the threshold detected in the nearest year with one
-    # (ustar.nearest_detected_year), the fixed ustar_threshold only where no year has one
+    # (ustar.nearest_detected_year), the fixed ustar_threshold only where no year has one;
+    # since 0.20.0, where no season of any year can, each year's nights are first tested
+    # pooled as one season (ustar._pooled_years), which this count cannot foretell
     fixed = f"the fixed ustar_threshold = {config.ustar_threshold:g} m s-1"
-    fallback = (f"{fixed} would be used" if len(years) == len(all_years) else
+    fallback = ("each year's night records would be tested pooled as one season (the u* "
+                "table's source pooled_year), a year that gives none so taking the nearest "
+                f"year's threshold; where no year gives one, {fixed} would be used"
+                if len(years) == len(all_years) else
                 f"the threshold detected in the nearest year with one would be used ({fixed} "
                 "if none has)")
     for year in sorted(years):

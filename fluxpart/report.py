@@ -627,7 +627,10 @@ def _methods(config: dict, has_random: bool) -> tuple[str, list[str]]:
         f"{_setting_value(config.get('night_rg_threshold'))} W m-2.",
         "Screening: plausible ranges, the site's own flag, and despiking of the double-"
         f"differenced series in {_setting_value(config.get('despike_block_days'))}-day blocks "
-        f"with z = {_setting_value(config.get('despike_z'))} (Papale et al. 2006).",
+        f"with z = {_setting_value(config.get('despike_z'))} (Papale et al. 2006); a record "
+        "outside the band is a spike only where it also stands out from the records on both "
+        "sides, with further passes for short bursts of spikes (our rule: it spares a "
+        "spike's neighbours and a step change).",
         f"u* threshold: {ustar}. Night records below the threshold are removed.",
         "Gap filling of NEE and the drivers by marginal distribution sampling (Reichstein et "
         "al. 2005, appendix): similar Rg, Tair and VPD within widening time windows, then the "

@@ -262,8 +262,9 @@ def _standing_out(values, centred, beyond) -> np.ndarray:
     two-record burst by the burst's height (``|d|`` about the height), and the edge record
     of a three-record burst, whose nearest inner record (the middle, ``d`` about 0) is not
     beyond, by half of it on the inner side; a record next to a spike or burst, whose
-    ``|d|`` is raised by it, hardly departs from the records on its other side. The first
-    and the last two records have too few references and are never flagged.
+    ``|d|`` is raised by it, hardly departs from the records on its other side. Where only
+    the first (last) record of the series is clean before (after) a record, it alone is the
+    reference on that side; the first and the last record are never beyond (no ``d``).
     """
     n = len(values)
     position = np.arange(n)
@@ -280,6 +281,10 @@ def _standing_out(values, centred, beyond) -> np.ndarray:
         level = np.full(n, np.nan)
         level[valid] = 0.5 * (values[order][nearest[valid]]
                               + values[order][before_nearest[valid]])
+        # the first (last) record of the series is always clean (no d): the only reference
+        # of a candidate with no other clean record before (after) it
+        alone = (nearest >= 0) & (before_nearest < 0)
+        level[alone] = values[order][nearest[alone]]
         side = np.empty(n)
         side[order] = level
         with np.errstate(invalid="ignore"):

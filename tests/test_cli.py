@@ -161,3 +161,36 @@ def test_collector_thresholds_raised_during_a_command_and_restored(example, monk
     assert main(["run", str(example), "--quiet"]) == 2
     assert seen == [cli._GC_THRESHOLDS] and cli._GC_THRESHOLDS != before
     assert gc.get_threshold() == before
+
+
+def _thinned_nights(tmp_path, keep):
+    """The invented demo year as a tower file, keeping a share `keep` of its night NEE."""
+    import numpy as np
+
+    from fluxpart import demo
+
+    config = demo.write_example(tmp_path, seed=1)
+    path = config.with_suffix(".csv")
+    table = pd.read_csv(path, dtype=str)
+    dark = ~(table["solar_down"].astype(float).to_numpy() > 20.0)
+    drop = dark & (np.random.default_rng(3).random(len(table)) >= keep)
+    table.loc[drop, "co2_exchange"] = "-9999"
+    table.to_csv(path, index=False)
+    return config
+
+
+def test_check_does_not_list_a_u_star_year_its_table_shows_detected(tmp_path, capsys):
+    """Behaviour check of check against its own u* table (review19): with a quarter of the
+    demo year's night NEE, every season holds under the 6 x 20 x 3 = 360 records the
+    preflight counts, yet the moving point test, merging temperature classes where it
+    cannot resolve them (down to one class of 20 x 3 = 60), gives the year its threshold;
+    check listed "no season has the 360 night records ... would be used" beside a table
+    showing it detected. With 6 % kept no season gives one and the finding stays."""
+    assert main(["check", str(_thinned_nights(tmp_path / "quarter", 0.25))]) == 0
+    out = capsys.readouterr().out
+    assert "problems found: none" in out
+    assert " 2021   year " in out and "detected" in out.split("u* threshold [m s-1]")[1]
+    assert main(["check", str(_thinned_nights(tmp_path / "sparse", 0.06))]) == 1
+    out = capsys.readouterr().out
+    assert "u* threshold: 2021: no season has the 360 night records" in out
+    assert "pooled_year" in out.split("u* threshold [m s-1]")[1]

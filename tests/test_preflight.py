@@ -160,6 +160,53 @@ def test_a_stub_year_without_enough_night_records_names_the_nearest_years_thresh
     assert alone and all("fixed ustar_threshold = 0.2 m s-1 would be used" in m for m in alone)
 
 
+def test_a_year_whose_seasons_all_lack_nights_is_not_promised_the_fixed_threshold(demo_frame):
+    """Behaviour check of check against run (review19): with 94 % of the demo year's night
+    NEE removed at random no season holds the 360 night records the moving point test
+    needs, yet the year's nights pooled as one season give a threshold (ustar._pooled_years,
+    source pooled_year in the u* table). The check's finding had promised the fixed
+    ustar_threshold outright while the table beside it showed the pooled year's."""
+    from fluxpart.pipeline import _geometry_and_screening, _ustar_thresholds
+
+    rng = np.random.default_rng(3)
+    dark = ~(demo_frame["rg"].to_numpy() > 20.0)
+    frame = demo_frame.assign(nee=demo_frame["nee"].where(~dark | (rng.random(len(dark)) < 0.06)))
+    config = Config(ustar_bootstrap_draws=0)
+    _, is_night, screens = _geometry_and_screening(frame, demo.site(), config, 30)
+    table, *_ = _ustar_thresholds(frame, screens.screened, is_night, demo.site(), config)
+    assert (table.loc[table["period"] == "year", "source"] == "pooled_year").all()
+    _, findings = check_record(frame, demo.site(), config)
+    ustar = [f.message for f in findings if f.stage == "u* threshold"]
+    assert len(ustar) == 1 and "pooled as one season" in ustar[0]
+    assert "no year gives one" in ustar[0]       # the fixed value only as the last resort
+
+
+def test_change_point_detector_need_counts_its_temperature_strata(demo_frame):
+    """Behaviour check of check against run (review19): the change-point detector splits
+    each season into ``ustar_temperature_classes`` strata and tests only strata of 50 u*
+    bins of 3 records (Barr et al. 2013's 50 bins (m)), so a season needs 6 x 150 = 900
+    night records. With 30 % of the demo year's night NEE kept, every season holds 150-899
+    and gives no threshold for want of a stratum of 150 (the year's 1171 nights pooled as
+    one season then give 0.175 m s-1, 0.18 planted), and the check had said nothing (it
+    counted 150 per season)."""
+    from fluxpart.pipeline import _geometry_and_screening, _ustar_thresholds
+
+    rng = np.random.default_rng(3)
+    dark = ~(demo_frame["rg"].to_numpy() > 20.0)
+    frame = demo_frame.assign(nee=demo_frame["nee"].where(~dark | (rng.random(len(dark)) < 0.3)))
+    config = Config(ustar_method="change_point", ustar_bootstrap_draws=0)
+    _, is_night, screens = _geometry_and_screening(frame, demo.site(), config, 30)
+    table, *_ = _ustar_thresholds(frame, screens.screened, is_night, demo.site(), config)
+    seasons = table[table["period"] != "year"]
+    assert seasons["night_records"].between(150, 899).all()
+    assert seasons["reason"].str.contains("no stratum with 150").all()
+    assert (table.loc[table["period"] == "year", "source"] == "pooled_year").all()
+    _, findings = check_record(frame, demo.site(), config)
+    ustar = [f.message for f in findings if f.stage == "u* threshold"]
+    assert len(ustar) == 1 and "the 900 night records" in ustar[0]
+    assert "pooled as one season" in ustar[0]
+
+
 def test_rg_above_potential_is_reported_as_clock_evidence(demo_frame):
     """A site configured one hour off: the Rg-above-potential screen's rejections are
     reported (in the morning or evening), not silently refilled."""

@@ -1076,3 +1076,23 @@ def test_a_report_beyond_the_file_size_limit_names_that_limit(written_demo, tmp_
     assert len(lines) == 1 and "(File too large)" in lines[0]
     assert "raise the file-size limit (ulimit -f)" in lines[0]
     assert list(tmp_path.iterdir()) == []
+
+
+def test_methods_name_the_despiking_rule_the_run_applies():
+    """Behaviour check (review19): on a step change (a sensor swap) eq. 1-2 of Papale et
+    al. (2006) flag both records at the step, the run's despiking neither (its own rule,
+    fluxpart.screening.despike ``isolate``), so the report's methods must not name the
+    published criterion alone."""
+    from fluxpart.screening import despike
+
+    rng = np.random.default_rng(4)
+    index = pd.date_range("2023-06-01", periods=400, freq="30min")
+    values = rng.normal(0.0, 0.3, 400)
+    values[200:] += 10.0
+    is_night = np.ones(400, dtype=bool)
+    assert despike(values, index, is_night, isolate=False)[[199, 200]].all()
+    assert not despike(values, index, is_night).any()
+    listed, _ = report._methods({}, False)
+    screening_item = next(item for item in listed.split("<li>") if item.startswith("Screening:"))
+    assert "Papale et al. 2006" in screening_item
+    assert "stands out from the records on both sides" in screening_item

@@ -332,3 +332,22 @@ def test_despike_finds_spikes_in_bursts_of_two_and_three(rng):
     clean = np.ones(len(nee), dtype=bool)
     clean[burst] = False
     assert found[clean].mean() <= 0.01
+
+
+def test_despike_flags_a_spike_next_to_either_end_of_the_series(rng):
+    """A spike at the second or the second-last valid record is flagged, as eq. 1-2 of
+    Papale et al. (2006) flag it (``d`` is defined at every record but the first and the
+    last), and not its neighbours (review19: the refinement needed two reference records
+    on each side, so spikes there were kept; 0.19.0 flagged them). Invented noise with a
+    spike (known-truth recovery); NaN at the ends does not change which record is second."""
+    index = pd.date_range("2023-06-01", periods=60, freq="30min")
+    is_night = np.ones(60, dtype=bool)
+    for spike in (1, 2, 57, 58):
+        values = rng.normal(0.0, 0.5, 60)
+        values[spike] += 12.0
+        if spike == 2:
+            values[0] = np.nan               # the spike is the second valid record
+        if spike == 57:
+            values[59] = np.nan              # the spike is the second-last valid record
+        assert despike(values, index, is_night, isolate=False)[spike]
+        assert np.flatnonzero(despike(values, index, is_night)).tolist() == [spike]
