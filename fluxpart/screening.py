@@ -285,10 +285,16 @@ def _standing_out(values, centred, beyond) -> np.ndarray:
         # of a candidate with no other clean record before (after) it
         alone = (nearest >= 0) & (before_nearest < 0)
         level[alone] = values[order][nearest[alone]]
-        side = np.empty(n)
-        side[order] = level
+        closest = np.full(n, np.nan)
+        closest[nearest >= 0] = values[order][nearest[nearest >= 0]]
+        side, near = np.empty(n), np.empty(n)
+        side[order], near[order] = level, closest
+        need = np.abs(centred) / 4.0
         with np.errstate(invalid="ignore"):
-            out &= np.sign(centred) * (values - side) >= np.abs(centred) / 4.0
+            # the nearest record alone where it is the farther from the value: on a steep
+            # ramp the mean of two sits a record further up (or down) the slope
+            out &= ((np.sign(centred) * (values - side) >= need)
+                    | (np.sign(centred) * (values - near) >= need))
     return out
 
 
