@@ -178,7 +178,14 @@ import numpy as np
 import pandas as pd
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from trial_scoring import FLUXES, TRUTH_OF, misses, summary_cells, summary_header  # noqa: E402
+from trial_scoring import (  # noqa: E402
+    FLUXES,
+    TRUTH_OF,
+    misses,
+    print_table,
+    summary_cells,
+    summary_header,
+)
 
 GC_PER_UMOL = 12.011e-6  # g C per umol (standard atomic weight of carbon (m))
 S0 = 1361.0  # solar constant W m-2 (Kopp & Lean 2011 (m))
@@ -694,24 +701,10 @@ def print_rows(rows, tag=""):
 def summary(rows):
     n = len(rows)
     errs = np.abs([r["nee_err"] for r in rows])
-    print(f"\n{n} complete site-years")
-    print(f"{'flux':15s} {'med|err|':>9s} {'worst':>7s} {'med|%|':>7s} {'worst%':>7s} "
-          f"{'in 95%':>7s} {'|err|/sig':>9s}")
-    for f in FLUXES:
-        e = np.abs([r[f + "_err"] for r in rows])
-        rel = np.abs([r[f + "_rel"] for r in rows])
-        ratio = np.median([abs(r[f + "_err"]) / max(r[f + "_halfwidth"] / 1.96, 1e-9)
-                           for r in rows])
-        print(f"{f:15s} {np.median(e):9.1f} {e.max():7.1f} {np.median(rel):7.1f} "
-              f"{rel.max():7.1f} {sum(r[f + '_in'] for r in rows):4d}/{n:<2d} {ratio:9.2f}")
+    print_table(rows)
     print(f"NEE: coverage {sum(r['nee_in'] for r in rows)} of {n}; median |err| "
           f"{np.median(errs):.1f} (target <= 5), worst {errs.max():.1f} (target <= 15) g C m-2;"
           f" within 15: {int((errs <= 15).sum())}, within 5: {int((errs <= 5).sum())}")
-    for f, lim in (("gpp_nighttime", 5), ("reco_nighttime", 5), ("gpp_daytime", 8),
-                   ("reco_daytime", 8)):
-        print(f"{f} within {lim} %: {sum(abs(r[f + '_rel']) <= lim for r in rows)} of {n}")
-    print(f"u* within 20 %: {sum(abs(r['ustar_rel']) <= 20 for r in rows)} of {n}; median "
-          f"{np.median([r['ustar_rel'] for r in rows]):+.1f} %")
 
 
 def main(argv=None):
