@@ -38,6 +38,7 @@ import math
 import numpy as np
 import pandas as pd
 
+from .uncertainty import gap_runs
 from .variables import vpd_from_rh
 
 __all__ = ["GAPLESS_DAYS", "SOIL_RANGE_RATIO", "dew_point_as_tair", "gapless_nee",
@@ -506,10 +507,7 @@ def interpolated_nee(nee, interval_minutes: float, stamps=None, columns=None) ->
     flat = (first == 0.0) & ((x[2:] - x[1:-1]) == 0.0)
     straight = (size <= tolerance) & ~flat
     # runs of second differences within the tolerance, each spanning its length + 2 records
-    padded = np.concatenate([[False], straight, [False]])
-    edges = np.flatnonzero(np.diff(padded.astype(np.int8)))
-    starts, ends = edges[0::2], edges[1::2]
-    lengths = ends - starts
+    starts, lengths = gap_runs(straight)
     long = lengths >= _LINE_RECORDS - 2
     records = int(np.sum(lengths[long] + 2))
     if records < _LINE_MIN_RECORDS:
@@ -582,9 +580,8 @@ def zero_coded_temperature(values, name: str, stamps=None, columns=None) -> str 
     if x.size < 3:
         return None
     zero = x == 0.0
-    padded = np.concatenate([[False], zero, [False]])
-    edges = np.flatnonzero(np.diff(padded.astype(np.int8)))
-    starts, ends = edges[0::2], edges[1::2]          # run of zeros: x[start:end]
+    starts, lengths = gap_runs(zero)
+    ends = starts + lengths                           # run of zeros: x[start:end]
     inside = (starts > 0) & (ends < x.size)
     starts, ends = starts[inside], ends[inside]
     if starts.size < _ZERO_RUNS:
@@ -673,10 +670,8 @@ def gapless_nee(nee, interval_minutes: float, stamps=None, rejected=None,
     needed = int(math.ceil(GAPLESS_DAYS * 1440.0 / interval_minutes))
     if int(kept.sum()) < needed:
         return None
-    padded = np.concatenate([[False], kept, [False]])
-    edges = np.flatnonzero(np.diff(padded.astype(np.int8)))
-    starts, ends = edges[0::2], edges[1::2]
-    lengths = ends - starts
+    starts, lengths = gap_runs(kept)
+    ends = starts + lengths
     longest = int(np.argmax(lengths))
     if lengths[longest] < needed:
         return None

@@ -545,6 +545,7 @@ def _long_driver_gaps(index: pd.DatetimeIndex, frame: pd.DataFrame, nee: np.ndar
     nighttime Reco of those days by -7 %).
     """
     out = []
+    measured_before = np.concatenate([[0], np.cumsum(np.isfinite(nee))])
     for name in ("tsoil", "tair", "vpd", "rg"):
         if name not in frame.columns:
             continue
@@ -553,8 +554,7 @@ def _long_driver_gaps(index: pd.DatetimeIndex, frame: pd.DataFrame, nee: np.ndar
             continue
         starts, records = gap_runs(~np.isfinite(values))
         lengths = records * interval_minutes / 1440.0
-        measured = np.array([np.isfinite(nee[a:a + n]).mean() for a, n in
-                             zip(starts, records, strict=True)]) if starts.size else starts
+        measured = (measured_before[starts + records] - measured_before[starts]) / records
         long = np.flatnonzero((lengths > QUALITY_A_WINDOW_DAYS) & (measured >= 0.5))
         if long.size == 0:
             continue
