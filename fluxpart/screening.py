@@ -267,8 +267,8 @@ def _standing_out(values, centred, beyond) -> np.ndarray:
     of a three-record burst, whose nearest inner record (the middle, ``d`` about 0) is not
     beyond, by half of it on the inner side; a record next to a spike or burst, whose
     ``|d|`` is raised by it, hardly departs from the records on its other side. Where only
-    the first (last) record of the series is clean before (after) a record, it alone is the
-    reference on that side; the first and the last record are never beyond (no ``d``).
+    one clean record lies before (after) a record, the nearest-alone test is the one made
+    on that side; the first and the last record are never beyond (no ``d``).
     """
     n = len(values)
     position = np.arange(n)
@@ -285,10 +285,8 @@ def _standing_out(values, centred, beyond) -> np.ndarray:
         level = np.full(n, np.nan)
         level[valid] = 0.5 * (values[order][nearest[valid]]
                               + values[order][before_nearest[valid]])
-        # the first (last) record of the series is always clean (no d): the only reference
-        # of a candidate with no other clean record before (after) it
-        alone = (nearest >= 0) & (before_nearest < 0)
-        level[alone] = values[order][nearest[alone]]
+        # the nearest alone also stands where it is the only clean record on that side
+        # (the first or last record of the series, never beyond: no d)
         closest = np.full(n, np.nan)
         closest[nearest >= 0] = values[order][nearest[nearest >= 0]]
         side, near = np.empty(n), np.empty(n)
