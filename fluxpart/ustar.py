@@ -182,9 +182,7 @@ class UstarResult:
         seasonal = self.seasonal.rename(columns={"season": "period"}).assign(
             detector=self.settings.get("detector", ""))
         both = pd.concat([annual[columns], seasonal[columns]], ignore_index=True)
-        rank = both["period"].map({"year": 0, **{s: i + 1 for i, s in enumerate(SEASONS)}})
-        return (both.assign(_rank=rank).sort_values(["year", "_rank"], kind="stable")
-                .drop(columns="_rank").reset_index(drop=True))
+        return _in_period_order(both, ["year"])
 
     def threshold_for(self, index, *, column="threshold", fallback=None) -> np.ndarray:
         """The annual threshold of each record's calendar year.
@@ -858,12 +856,8 @@ def _pooled_years(estimate, draws_table, nee, ustar, tair, is_night, seasons, de
     pooled_draws = pooled_draws[(pooled_draws["period"] == "year")
                                 & pooled_draws["year"].isin(gained)]
     kept = ~((draws_table["period"] == "year") & draws_table["year"].isin(gained))
-    rank = lambda table: table["period"].map(  # noqa: E731 - the table order of _bootstrap
-        {"year": 0, **{s: i + 1 for i, s in enumerate(SEASONS)}})
-    both = pd.concat([draws_table[kept], pooled_draws], ignore_index=True)
-    draws_table = (both.assign(_rank=rank(both))
-                   .sort_values(["draw", "year", "_rank"], kind="stable")
-                   .drop(columns="_rank").reset_index(drop=True))
+    draws_table = _in_period_order(pd.concat([draws_table[kept], pooled_draws],
+                                             ignore_index=True), ["draw", "year"])
     return (ThresholdEstimate(seasonal=estimate.seasonal, annual=annual,
                               strata=estimate.strata), draws_table)
 
@@ -1455,11 +1449,16 @@ def _bootstrap(data: _NightData, detector, options, draws, seed) -> pd.DataFrame
                              "threshold": pd.Series(dtype=float)})
     table = pd.DataFrame({name: np.concatenate([row[i] for row in rows])
                           for i, name in enumerate(("draw", "year", "period", "threshold"))})
-    rank = table["period"].map({"year": 0, **{s: i + 1 for i, s in enumerate(SEASONS)}})
-    table = (table.assign(_rank=rank).sort_values(["draw", "year", "_rank"], kind="stable")
-             .drop(columns="_rank").reset_index(drop=True))
-    return table.astype({"draw": np.int64, "year": np.int64, "period": "str",
+    return _in_period_order(table, ["draw", "year"]).astype({"draw": np.int64, "year": np.int64, "period": "str",
                          "threshold": float})
+
+
+def _in_period_order(table: pd.DataFrame, keys) -> pd.DataFrame:
+    """`table` sorted (stably) by `keys`, then its ``period``: the year first, then the
+    seasons in :data:`SEASONS` order."""
+    rank = table["period"].map({"year": 0, **{s: i + 1 for i, s in enumerate(SEASONS)}})
+    return (table.assign(_rank=rank).sort_values([*keys, "_rank"], kind="stable")
+            .drop(columns="_rank").reset_index(drop=True))
 
 
 def _spread(draws: pd.DataFrame, keys) -> pd.DataFrame:
