@@ -44,7 +44,8 @@ earlier or later (column shifted)
 tair fitting VPD and RH whole records     input (tair)                        no
 earlier or later (column shifted)
 months whose NEE rises with light beside  input (nee sign)                    no
-months whose NEE falls with it
+months whose NEE falls with it (or weeks
+where no month does)
 NEE on straight lines over runs of        input (nee filled)                  no
 records (gaps filled by interpolation)
 air or soil temperature dropping to       input (tair zeros, tsoil zeros)     no
@@ -52,6 +53,8 @@ exactly 0 and back by jumps (a code)
 NEE present and accepted in every record  input (nee gapless)                 no
 for 60 days (filled or unscreened)
 tair fitting VPD and RH as the dew point  input (tair dew point)              no
+NEE of one sign only next to 0, by day    input (nee one sign)                no
+or at night (values of one sign removed)
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no
@@ -75,6 +78,7 @@ import numpy as np
 import pandas as pd
 
 from .column_faults import (
+    censored_nee,
     dew_point_as_tair,
     gapless_nee,
     interpolated_nee,
@@ -327,10 +331,10 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
 
 
 def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
-                   sources=None) -> list:
+                   sources=None, is_night=None) -> list:
     """Air and soil temperature swapped, NEE shifted against Rg or of the opposite sign in
-    some months or interpolated over its gaps, air temperature shifted against RH and VPD
-    (:mod:`.column_faults`)."""
+    some months or weeks or interpolated over its gaps or with one sign removed next to
+    0, air temperature shifted against RH and VPD (:mod:`.column_faults`)."""
     findings = []
     names = {**{name: name for name in screened.columns}, **(sources or {})}
     if {"tair", "tsoil"} <= set(screened.columns):
@@ -358,6 +362,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                 screened.index, names)
         if text:
             findings.append(Finding("input (nee filled)", text, False))
+        if is_night is not None:
+            text = censored_nee(screened["nee"].to_numpy(dtype=float), is_night,
+                                screened.index, names)
+            if text:
+                findings.append(Finding("input (nee one sign)", text, False))
     for name in ("tair", "tsoil"):
         if name in screened.columns:
             text = zero_coded_temperature(screened[name].to_numpy(dtype=float), name,
@@ -791,7 +800,8 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         findings += _stuck(frame, potential, interval_minutes)
         repeated = _repeated_records(frame, interval_minutes)
         findings += repeated or _repeated_nee(frame, interval_minutes)
-        findings += _column_faults(screened, potential, interval_minutes, sources)
+        findings += _column_faults(screened, potential, interval_minutes, sources,
+                                   is_night)
         findings += _gapless(frame, interval_minutes, sources)
     if (temperature_name in frame.columns
             and not np.isfinite(frame[temperature_name].to_numpy(dtype=float)).any()):

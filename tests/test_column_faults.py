@@ -16,6 +16,7 @@ import pandas as pd
 from fluxpart.column_faults import (
     GAPLESS_DAYS,
     SOIL_RANGE_RATIO,
+    censored_nee,
     dew_point_as_tair,
     gapless_nee,
     interpolated_nee,
@@ -216,6 +217,99 @@ def test_months_of_an_hourly_record_are_judged():
     flipped = np.where(stamps >= "2021-05-01", -nee, nee)
     text = months_rising_with_light(flipped[::2], rg[::2], potential[::2], stamps[::2])
     assert text is not None and "2021-05" in text
+
+
+def test_ten_days_of_the_opposite_sign_inside_a_month_are_named():
+    # a sign flipped for 10 days of May (mistakes17: +118 g C m-2 of annual NEE on the
+    # example site, unnamed): May's own correlation is diluted by its other 21 days, a
+    # week inside the flipped days is not (weeks counted from the record's first day)
+    nee, rg, potential, stamps = stamped_light_record()
+    flipped = np.where((stamps >= "2021-05-11") & (stamps < "2021-05-21"), -nee, nee)
+    text = months_rising_with_light(flipped, rg, potential, stamps, columns={"nee": "co2"})
+    assert text is not None and "1 7-day stretch(es): 2021-05-10 .. 2021-05-16" in text
+    assert "'co2'" in text
+
+
+def test_a_dormant_week_beside_active_ones_is_quiet():
+    # a week of respiration and noise alone (snow, a cut) has no light response either way
+    nee, rg, potential, stamps = stamped_light_record()
+    rng = np.random.default_rng(4)
+    quiet = (stamps >= "2021-05-11") & (stamps < "2021-05-21")
+    dormant = np.where(quiet, 1.0 + rng.normal(0, 1.0, nee.size), nee)
+    assert months_rising_with_light(dormant, rg, potential, stamps) is None
+
+
+def sign_record(seed=0, days=365):
+    """Invented half-hourly NEE of a year crossing zero, with a measured flux's noise.
+
+    True NEE: respiration 0.5-3 µmol m-2 s-1 over the seasons minus a light response;
+    random error Laplace with standard deviation 0.3 + 0.15 |NEE| (Hollinger &
+    Richardson 2005, Tree Physiology 25: 873-885 (m); Richardson et al. 2006, Agric. For.
+    Meteorol. 136: 1-18 (m)). Returns NEE, the night mask (sun down) and the stamps.
+    """
+    rng = np.random.default_rng(seed)
+    n = days * PER_DAY
+    stamps = pd.date_range("2021-01-01", periods=n, freq=f"{STEP}min")
+    hours = (np.arange(n) % PER_DAY) * STEP / 60.0 + STEP / 120.0
+    season = 0.5 - 0.5 * np.cos(2 * np.pi * np.arange(n) / n)         # 0 in Jan, 1 in Jul
+    day_length = 8.0 + 8.0 * season
+    light = np.clip(np.sin(np.pi * (hours - 12.0 + day_length / 2) / day_length), 0, None)
+    rg = 900.0 * light * np.clip(0.7 + rng.normal(0, 0.25, n), 0.1, 1.0)
+    gpp = season * 0.05 * rg * 25.0 / (0.05 * rg + 25.0)
+    true = 0.5 + 2.5 * season - gpp
+    nee = true + rng.laplace(0.0, (0.3 + 0.15 * np.abs(true)) / np.sqrt(2.0))
+    return np.round(nee, 3), rg < 10.0, stamps
+
+
+def test_the_chance_of_a_one_sided_run_is_negligible():
+    # a Laplace error of scale b >= 0.2 µmol m-2 s-1 (sigma >= 0.3, Richardson et al. 2006
+    # (m)) changes a density by at most exp(0.25 / 0.2) over a bin of 0.25, so either side
+    # holds a value near 0 with a chance of at least 1 / (1 + exp(1.25)); 50 in a row on one
+    # side among 2000 such values (the generated benchmarks hold 100-1800 a year) comes
+    # with a chance below 1 % even at that bound
+    side = 1.0 / (1.0 + np.exp(0.25 / 0.2))
+    assert 0.2 < side < 0.25
+    assert 2000 * (1.0 - side) ** 50 < 0.01
+
+
+def test_measured_nee_of_both_signs_is_quiet():
+    for seed in range(5):
+        nee, night, stamps = sign_record(seed)
+        assert censored_nee(nee, night, stamps) is None
+
+
+def test_positive_day_values_removed_are_named_with_their_stretch():
+    # a filter of "impossible" daytime release (mistakes17: annual NEE -98 g C m-2 on the
+    # example site, unnamed)
+    nee, night, stamps = sign_record()
+    text = censored_nee(np.where(~night & (nee > 0), np.nan, nee), night, stamps,
+                        columns={"nee": "Fc"})
+    assert text is not None and "'Fc'" in text and "by day" in text
+    assert "at night" not in text and "2021-01-01 .. 2021-12-31" in text
+
+
+def test_negative_night_values_removed_are_named():
+    nee, night, stamps = sign_record()
+    text = censored_nee(np.where(night & (nee < 0), np.nan, nee), night, stamps)
+    assert text is not None and "at night" in text and "by day" not in text
+
+
+def test_nee_rounded_to_whole_units_is_not_judged():
+    # no value lies within 0.25 of 0 but the exact zeros, which are left out
+    nee, night, stamps = sign_record()
+    rounded = np.round(nee)
+    assert censored_nee(np.where(~night & (rounded > 0), np.nan, rounded), night,
+                        stamps) is None
+
+
+def test_preflight_names_nee_of_one_sign():
+    nee, night, stamps = sign_record()
+    frame = pd.DataFrame({"nee": np.where(~night & (nee > 0), np.nan, nee)}, index=stamps)
+    stages = [f.stage for f in _column_faults(frame, np.where(night, 0.0, 500.0), STEP,
+                                              is_night=night)]
+    assert stages == ["input (nee one sign)"]
+    frame = pd.DataFrame({"nee": nee}, index=stamps)
+    assert _column_faults(frame, np.where(night, 0.0, 500.0), STEP, is_night=night) == []
 
 
 def gappy_flux_record(seed=0, days=120, resolution=0.001):
