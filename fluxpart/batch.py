@@ -96,6 +96,7 @@ __all__ = [
     "run_batch",
     "run_site",
     "same_input_sites",
+    "same_name_sites",
 ]
 
 #: Folder of the network's annual dataset inside the batch output folder.
@@ -961,7 +962,7 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
                           f"({error.strerror or error}); the site folders written are whole, "
                           "and a rerun skips them and rewrites the network tables") from None
     return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures,
-                       warnings=tuple(same_input_sites(outcomes)))
+                       warnings=tuple(same_input_sites(outcomes) + same_name_sites(outcomes)))
 
 
 def _input_hashes(directory: Path) -> tuple:
@@ -995,6 +996,39 @@ def same_input_sites(outcomes) -> list[str]:
             f"file(s) (SHA-256 {hashes[0][:12]}...): the network tables count those records "
             f"{len(keys)} times; check [input] path in their site configs"
             for hashes, keys in groups.items() if len(keys) > 1]
+
+
+def same_name_sites(outcomes) -> list[str]:
+    """One warning per group of sites of different inputs that carry the same [site] name.
+
+    A site config copied for a new tower with its ``[input] path`` changed but its
+    ``[site]`` table left as it was gives the new tower's budget under the first
+    tower's name (and coordinates, which the clock check passes where the towers are
+    near): the network tables then hold two rows of one name, which a reader joining
+    them with other data by site name merges or overwrites. The site's key (the config's
+    file stem) is not the name a published table shows. Names are compared as written in
+    each manifest (``site.name``), after stripping spaces and ignoring case; sites of the
+    same input files are left to :func:`same_input_sites`.
+    """
+    groups: dict[str, list[tuple[str, str, tuple]]] = {}
+    for outcome in outcomes:
+        if outcome.status == "failed":
+            continue
+        try:
+            manifest = read_manifest(Path(outcome.directory))
+            hashes = _input_hashes(Path(outcome.directory))
+        except (FluxpartError, OSError, ValueError):
+            continue
+        name = (manifest.get("site") or {}).get("name") if isinstance(manifest, dict) else None
+        if isinstance(name, str) and name.strip():
+            groups.setdefault(" ".join(name.split()).casefold(), []).append(
+                (outcome.key, name, hashes))
+    return [f"sites {', '.join(repr(k) for k, _, _ in members)} carry the same [site] name "
+            f"{members[0][1]!r} but were computed from different input files: the network "
+            "tables hold one name for different towers; give each its own [site] name (and "
+            "check its latitude and longitude)"
+            for members in groups.values()
+            if len(members) > 1 and len({h for _, _, h in members}) > 1]
 
 
 def _check_out(out: Path) -> None:

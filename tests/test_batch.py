@@ -537,6 +537,31 @@ def test_sites_computed_from_the_same_input_are_warned_about(tmp_path):
     assert batch.same_input_sites(outcomes[2:]) == []
 
 
+def test_sites_of_different_inputs_under_one_name_are_warned_about(tmp_path):
+    """A site config copied for a new tower with [input] path changed but [site] name
+    left: two towers under one name in the network tables (mistakes17: silent before;
+    a site's name identifies it in published tables, common practice)."""
+    def folder(key, name, sha):
+        directory = tmp_path / key
+        directory.mkdir()
+        (directory / "manifest.json").write_text(json.dumps({
+            "site": {"name": name}, "provenance": {"input": {"path": "a.csv", "sha256": sha}}}))
+        return batch.SiteOutcome(key=key, config=f"{key}.toml", directory=str(directory),
+                                 status="written")
+
+    outcomes = [folder("east", "Quillmoor east meadow", "aa"),
+                folder("north", "Quillmoor  East meadow ", "bb"),
+                folder("south", "Quillmoor south maize", "cc"),
+                folder("east_copy", "Quillmoor south maize", "cc")]
+    warnings = batch.same_name_sites(outcomes)
+    assert len(warnings) == 1
+    assert warnings[0].startswith("sites 'east', 'north' carry the same [site] name")
+    assert "different input files" in warnings[0]
+    # one input under one name twice is the same-input warning's, not this one's
+    assert batch.same_name_sites(outcomes[2:]) == []
+    assert len(batch.same_input_sites(outcomes[2:])) == 1
+
+
 # --------------------------------------------------------------------------- output folder
 
 
