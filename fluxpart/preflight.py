@@ -41,6 +41,8 @@ soil temperature swinging more than the   input (tair, tsoil)                 no
 air (columns swapped)
 NEE changing with Rg whole records        input (nee)                         no
 earlier or later (column shifted)
+NEE changing with Rg whole days earlier   input (nee days)                    no
+or later (files of other dates joined)
 tair fitting VPD and RH whole records     input (tair)                        no
 earlier or later (column shifted)
 months whose NEE rises with light beside  input (nee sign)                    no
@@ -83,6 +85,7 @@ from .column_faults import (
     gapless_nee,
     interpolated_nee,
     months_rising_with_light,
+    nee_day_shift,
     nee_lag,
     swapped_temperatures,
     tair_lag,
@@ -352,6 +355,12 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                        names)
         if text:
             findings.append(Finding("input (nee)", text, False))
+        else:
+            text = nee_day_shift(screened["nee"].to_numpy(dtype=float),
+                                 screened["rg"].to_numpy(dtype=float), potential,
+                                 interval_minutes, names)
+            if text:
+                findings.append(Finding("input (nee days)", text, False))
         text = months_rising_with_light(screened["nee"].to_numpy(dtype=float),
                                         screened["rg"].to_numpy(dtype=float), potential,
                                         screened.index, names)

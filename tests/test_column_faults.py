@@ -12,6 +12,7 @@ handbook values in test_variables).
 
 import numpy as np
 import pandas as pd
+import pytest
 
 from fluxpart.column_faults import (
     GAPLESS_DAYS,
@@ -21,6 +22,7 @@ from fluxpart.column_faults import (
     gapless_nee,
     interpolated_nee,
     months_rising_with_light,
+    nee_day_shift,
     nee_lag,
     swapped_temperatures,
     tair_lag,
@@ -131,6 +133,28 @@ def test_noise_that_hides_the_light_response_cannot_tell():
     nee, rg, potential = light_record(noise=200.0)
     late = np.concatenate([[np.nan], nee[:-1]])
     assert nee_lag(late, rg, potential, STEP) is None
+
+
+@pytest.mark.parametrize("days", [1, -1, 10])
+def test_weather_whole_days_apart_is_named(days):
+    # the clouds of one day over another day's flux (mistakes17: the weather a day late
+    # moved GPP by -55 g C m-2 on the example site, unnamed); photosynthesis answers a
+    # cloud within minutes (Lambers, Chapin & Pons 2008 (m))
+    nee, rg, potential = light_record()
+    shifted = np.roll(rg, days * PER_DAY)
+    text = nee_day_shift(nee, shifted, potential, STEP, columns={"nee": "co2", "rg": "sw"})
+    later = "earlier" if days > 0 else "later"
+    assert text is not None and f"{abs(days)} day(s) {later}" in text and "'sw'" in text
+
+
+def test_aligned_weather_and_clear_skies_are_quiet():
+    nee, rg, potential = light_record()
+    assert nee_day_shift(nee, rg, potential, STEP) is None
+    # every day alike (no clouds): no day can be told from another
+    clear = 0.8 * potential
+    gpp = 0.05 * clear * 25.0 / (0.05 * clear + 25.0)
+    noisy = 3.0 - gpp + np.random.default_rng(2).normal(0, 1.0, clear.size)
+    assert nee_day_shift(noisy, np.roll(clear, PER_DAY), potential, STEP) is None
 
 
 def test_preflight_names_both_faults():
