@@ -57,6 +57,8 @@ for 60 days (filled or unscreened)
 tair fitting VPD and RH as the dew point  input (tair dew point)              no
 NEE of one sign only next to 0, by day    input (nee one sign)                no
 or at night (values of one sign removed)
+a column repeating its value in every     input (tair twice, ...)             no
+other record (a coarser file joined)
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no
@@ -89,6 +91,7 @@ from .column_faults import (
     nee_lag,
     swapped_temperatures,
     tair_lag,
+    values_written_twice,
     zero_coded_temperature,
 )
 from .gapfill import QUALITY_A_WINDOW_DAYS
@@ -393,6 +396,24 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                  screened["vpd"].to_numpy(dtype=float), names)
         if text:
             findings.append(Finding("input (tair dew point)", text, False))
+    return findings
+
+
+def _written_twice(frame: pd.DataFrame, potential, interval_minutes: float,
+                   sources=None) -> list:
+    """Columns holding values of twice the interval, each written in two records
+    (:func:`.column_faults.values_written_twice`); Rg judged by day only."""
+    names = {**{name: name for name in frame.columns}, **(sources or {})}
+    potential = np.asarray(potential, dtype=float)
+    findings = []
+    for name in ("nee", "rg", "tair", "vpd", "rh", "tsoil", "ustar"):
+        if name not in frame.columns:
+            continue
+        text = values_written_twice(frame[name].to_numpy(dtype=float), name,
+                                    interval_minutes, potential > 0 if name == "rg" else None,
+                                    names)
+        if text:
+            findings.append(Finding(f"input ({name} twice)", text, False))
     return findings
 
 
@@ -807,6 +828,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         return [Finding("whole record", "no records", True)]
     if not findings:                     # a wholly constant column is named above
         findings += _stuck(frame, potential, interval_minutes)
+        findings += _written_twice(frame, potential, interval_minutes, sources)
         repeated = _repeated_records(frame, interval_minutes)
         findings += repeated or _repeated_nee(frame, interval_minutes)
         findings += _column_faults(screened, potential, interval_minutes, sources,

@@ -26,9 +26,10 @@ from fluxpart.column_faults import (
     nee_lag,
     swapped_temperatures,
     tair_lag,
+    values_written_twice,
     zero_coded_temperature,
 )
-from fluxpart.preflight import _column_faults
+from fluxpart.preflight import _column_faults, _written_twice
 from fluxpart.variables import vpd_from_rh
 
 STEP = 30
@@ -155,6 +156,38 @@ def test_aligned_weather_and_clear_skies_are_quiet():
     gpp = 0.05 * clear * 25.0 / (0.05 * clear + 25.0)
     noisy = 3.0 - gpp + np.random.default_rng(2).normal(0, 1.0, clear.size)
     assert nee_day_shift(noisy, np.roll(clear, PER_DAY), potential, STEP) is None
+
+
+def test_hourly_values_written_twice_are_named():
+    # an hourly weather file joined to half-hourly records by a forward fill (mistakes17:
+    # air temperature so written moved GPP by -23 g C m-2 on the example site, unnamed)
+    air, _ = temperatures(0.05)
+    air = np.round(air, 2)
+    assert values_written_twice(air, "tair", STEP) is None
+    twice = np.repeat(air[::2], 2)[:air.size]
+    text = values_written_twice(twice, "tair", STEP, columns={"tair": "T_air"})
+    assert text is not None and "'T_air'" in text and "values of 60 minutes" in text
+    # the other phase (the fill began at an odd record) is the same fault
+    assert values_written_twice(np.concatenate([[air[0]], twice[:-1]]), "tair", STEP)
+
+
+def test_a_coarse_resolution_repeating_in_both_phases_is_quiet():
+    # a deep probe read to 0.5 K repeats in most pairs of either phase
+    _, soil = temperatures(0.3)
+    assert values_written_twice(np.round(soil * 2) / 2, "tsoil", STEP) is None
+
+
+def test_rg_written_twice_is_judged_by_day():
+    nee, rg, potential = light_record()
+    sunlit = potential > 0
+    assert values_written_twice(np.round(rg, 1), "rg", STEP, sunlit) is None
+    twice = np.repeat(np.round(rg, 1)[::2], 2)
+    assert values_written_twice(twice, "rg", STEP, sunlit) is not None
+    index = pd.date_range("2021-03-01", periods=rg.size, freq=f"{STEP}min")
+    frame = pd.DataFrame({"rg": twice, "nee": nee}, index=index)
+    assert [f.stage for f in _written_twice(frame, potential, STEP)] == ["input (rg twice)"]
+    frame = pd.DataFrame({"rg": rg, "nee": np.repeat(nee[::2], 2)}, index=index)
+    assert [f.stage for f in _written_twice(frame, potential, STEP)] == ["input (nee twice)"]
 
 
 def test_preflight_names_both_faults():
