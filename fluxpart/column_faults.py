@@ -528,7 +528,7 @@ def months_rising_with_light(nee, rg, potential, stamps, columns=None) -> str | 
             f"Rg), where {len(falling)} other {what} show the uptake that light brings "
             "within minutes (a negative correlation): NEE there looks of the opposite sign "
             "(a sign convention changed within the record); check the column and flip "
-            "those records in a copy of the file")
+            f"those {'months' if what == 'month(s)' else 'days'} in a copy of the file")
 
 
 def _clear_responses(d_nee, d_rg, usable, codes) -> tuple[list, list]:
@@ -565,11 +565,42 @@ _CENSOR_BIN = 0.25
 _CENSOR_RUN = 50
 
 
-def _one_sided_run(values: np.ndarray, stamps, lacking: str) -> tuple[int, int, object, object]:
-    """The longest run of `values` within :data:`_CENSOR_BIN` of 0 (exact zeros left out),
-    in time order, holding none of the `lacking` sign: (its length, all such values, the
-    stamps of its first and last value)."""
-    near = np.isfinite(values) & (values != 0) & (np.abs(values) <= _CENSOR_BIN)
+def _zero_bins(nee: np.ndarray, stamps) -> np.ndarray:
+    """Half-width of the bin beside 0 for each record [µmol m-2 s-1]: :data:`_CENSOR_BIN`,
+    or 1.25 Laplace scales of the month's own random error where that is smaller.
+
+    The random error is estimated from the month's successive differences (both records
+    present): 1.4826 MAD / sqrt(2) is the standard deviation of one record's error where
+    the flux itself changes little from one record to the next (the diurnal course
+    inflates it, which only keeps the bin at its full width). A column whose values are
+    far smaller than a flux's (a unit slip) has a far smaller error, and the bin shrinks
+    with it, so the bound of :data:`_CENSOR_BIN` on either side's chance holds.
+    """
+    bins = np.full(nee.size, _CENSOR_BIN)
+    if nee.size < 2:
+        return bins
+    months = (np.zeros(nee.size, dtype=np.int64) if stamps is None else
+              (pd.DatetimeIndex(stamps).year.to_numpy() * 12
+               + pd.DatetimeIndex(stamps).month.to_numpy()))
+    steps = np.diff(nee)
+    same = (months[1:] == months[:-1]) & np.isfinite(steps)
+    for month in np.unique(months):
+        chosen = same & (months[1:] == month)
+        if int(chosen.sum()) < 2:
+            continue
+        values = steps[chosen]
+        sigma = 1.4826 * float(np.median(np.abs(values - np.median(values)))) / math.sqrt(2.0)
+        scale = sigma / math.sqrt(2.0)                 # the Laplace scale b
+        bins[months == month] = min(_CENSOR_BIN, _CENSOR_BIN / 0.2 * scale)
+    return bins
+
+
+def _one_sided_run(values: np.ndarray, bins: np.ndarray, stamps,
+                   lacking: str) -> tuple[int, int, object, object]:
+    """The longest run of `values` within their `bins` of 0 (exact zeros left out), in time
+    order, holding none of the `lacking` sign: (its length, all such values, the stamps
+    of its first and last value)."""
+    near = np.isfinite(values) & (values != 0) & (np.abs(values) <= bins)
     positions = np.flatnonzero(near)
     kept = values[positions] < 0 if lacking == "positive" else values[positions] > 0
     # the runs of kept values: where the padded mask steps up (a start) and down (an end)
@@ -621,8 +652,11 @@ def censored_nee(nee, is_night, stamps=None, columns=None) -> str | None:
     values removed moved annual NEE by -98 g C m-2, from May to September alone by -42)
     or towards release at night (+11 g C m-2), and the stated random error, estimated
     from the kept records, cannot show it. Exact zeros are not counted (a zero written
-    for missing is named by the reader). A file with NEE rounded to whole µmol m-2 s-1
-    holds no values in the bins and is not judged; a filter of a shorter season (three
+    for missing is named by the reader). Where a month's own random error (from its
+    successive differences) is smaller than that bound, its bin shrinks in proportion
+    (:func:`_zero_bins`), so a flux a unit slip made small is not named for its shape. A
+    file with NEE rounded to whole µmol m-2 s-1 holds no values in the bins and is not
+    judged; a filter of a shorter season (three
     summer months, about 35 day values near 0 at a grassland) is not found.
 
     References
@@ -638,17 +672,18 @@ def censored_nee(nee, is_night, stamps=None, columns=None) -> str | None:
     is_night = np.asarray(is_night, dtype=bool)
     if nee.size != is_night.size or (stamps is not None and len(stamps) != nee.size):
         return None
+    bins = _zero_bins(nee, stamps)
     found = []
     for part, chosen, kept, lacking in (("by day", ~is_night, "below", "positive"),
                                         ("at night", is_night, "above", "negative")):
         times = None if stamps is None else pd.DatetimeIndex(stamps)[chosen]
-        run, near, first, last = _one_sided_run(nee[chosen], times, lacking)
+        run, near, first, last = _one_sided_run(nee[chosen], bins[chosen], times, lacking)
         if run < _CENSOR_RUN:
             continue
         when = "" if first is None else f" ({first:%Y-%m-%d} .. {last:%Y-%m-%d})"
         found.append(f"{part} {run} values in a row{when} of the {near} within "
-                     f"{_CENSOR_BIN:g} µmol m-2 s-1 of 0 lie {kept} it ({lacking} values "
-                     "removed?)")
+                     f"{_CENSOR_BIN:g} µmol m-2 s-1 (or the month's random error) of 0 lie "
+                     f"{kept} it ({lacking} values removed?)")
     if not found:
         return None
     return (f"NEE (column {(columns or {}).get('nee', 'nee')!r}) holds values of one sign "
