@@ -728,6 +728,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     rows_after_header = _check_rows(rows_after_header, "rows_after_header")
     interval_minutes = _check_interval(interval_minutes)
     flag_accept = _check_flag_accept(flag_accept)
+    flag_missing, exempted = _flag_missing_codes(missing, flag_accept)
     accept_units = _check_accept_units(accept_units)
     if unit_problems not in ("refuse", "report"):
         raise ConfigError(f"unit_problems = {unit_problems!r}: expected 'refuse' or 'report'")
@@ -742,6 +743,11 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         check_time_zone(time_zone, utc_offset)
 
     warnings: list[str] = []
+    if flag_columns and exempted:
+        shown = ", ".join(f"{v:g}" for v in exempted)
+        warnings.append(f"[input] missing lists {shown}, which [input] flag_accept keeps as a "
+                        f"good record: {shown} is read as missing in the data columns only, not "
+                        f"in the flag column(s) {', '.join(repr(c) for c in flag_columns)}")
     parts, mapping = [], None
     empty = []
     for path_ in paths:
@@ -752,7 +758,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               encoding=encoding, rows_before_header=rows_before_header,
                               rows_after_header=rows_after_header, time_zone=time_zone,
                               utc_offset=utc_offset, warnings=warnings,
-                              may_lack=len(paths) > 1)
+                              may_lack=len(paths) > 1, flag_missing=flag_missing)
         except _EmptyFileError as error:
             # one of several files without records (a logger file opened at a power cut):
             # it holds nothing to read, so the others are read and it is named
@@ -1245,6 +1251,29 @@ def _check_flag_accept(value) -> tuple:
         raise ConfigError(f"[input] flag_accept = {setting_text(value)}: expected a list of the flag "
                           "values that keep a record, e.g. flag_accept = [0, 1]")
     return tuple(value)
+
+
+def _flag_missing_codes(missing: tuple, flag_accept: tuple) -> tuple[tuple, list]:
+    """The missing codes applied to the flag columns: `missing` without the flag values
+    that keep a record, and the values so left out.
+
+    Missing codes apply to every column, and the reader's own hint for a flux written 0
+    where missing is to add 0 to `missing`; a flag whose good value is 0 then read as no
+    flag in every record, and its warning ("most records are rejected, the flags hold
+    [2]") pointed at `flag_accept` (mistakes17: on the example site, missing = [-9999, 0]).
+    A value that keeps a record cannot mean "no flag" in the flag's own column.
+    """
+    def number(code):
+        try:
+            value = float(code)
+        except (TypeError, ValueError):
+            return None
+        return value if math.isfinite(value) else None
+
+    accepted = {float(v) for v in flag_accept}
+    kept = tuple(code for code in missing if number(code) not in accepted)
+    left_out = sorted({number(code) for code in missing} & accepted)
+    return kept, left_out
 
 
 def _check_accept_units(value) -> tuple:
@@ -1915,7 +1944,7 @@ def _flag_key(column: str) -> str:
 
 def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_format, missing,
                delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
-               utc_offset, warnings, may_lack=False) -> dict:
+               utc_offset, warnings, may_lack=False, flag_missing=None) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column.
 
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
@@ -1946,8 +1975,10 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     # decimal commas in the file's other columns: its whole numbers "1.034" are grouped
     comma_file = decimal == "," and any(
         raw[column].str.contains(",", regex=False).any() for column in read.values())
+    flag_keys = {_flag_key(column) for column in flag_columns}
     for name, column in read.items():
-        numbers, n_missing, absurd = _numbers(raw[column], column, name, missing, decimal,
+        codes = flag_missing if (flag_missing is not None and name in flag_keys) else missing
+        numbers, n_missing, absurd = _numbers(raw[column], column, name, codes, decimal,
                                               source, lines, comma_file)
         values[name], missing_cells[name], nonfinite[name] = numbers, n_missing, int(absurd.sum())
         if absurd.any():

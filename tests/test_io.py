@@ -1415,6 +1415,30 @@ def test_flag_accept_and_two_flag_columns(tmp_path):
         _read(path, columns=MAPPING | {"nee_flag": "qc"}, flag_accept=["good"])
 
 
+def test_a_missing_code_that_is_a_good_flag_value_keeps_the_flag(tmp_path):
+    """missing = [-9999, 0] with flag_accept = [0] (mistakes17): missing codes applied to the
+    flag column too, so every good 0 read as no flag, and the flag warning blamed
+    flag_accept. A value cannot mean both "no value" and "a good record" in the flag's own
+    column (a fact of the setting): it stays a missing code of the data columns only."""
+    records = _records()
+    records["qc"] = np.arange(96) % 3
+    records.loc[records.index[7], "co2_flux"] = 0.0
+    path = _write(tmp_path / "t.csv", records)
+    plain, _ = _read(path, columns=MAPPING | {"nee_flag": "qc"}, flag_accept=[0, 1])
+    for missing in ([-9999, 0], [-9999, "0"], 0.0):
+        frame, report = _read(path, columns=MAPPING | {"nee_flag": "qc"}, missing=missing,
+                              flag_accept=[0, 1])
+        np.testing.assert_array_equal(frame["nee_flag"], plain["nee_flag"])
+        assert np.isnan(frame["nee"].iloc[7])          # the data column's 0 is missing
+        assert any("missing lists 0, which [input] flag_accept keeps" in w
+                   for w in report.warnings)
+        assert not any("are rejected by" in w for w in report.warnings)
+    # a missing code that is not an accepted flag value applies to the flag as before
+    frame, _ = _read(path, columns=MAPPING | {"nee_flag": "qc"}, missing=[-9999, 0],
+                     flag_accept=[1, 2])
+    assert np.isnan(frame["nee_flag"][records["qc"].to_numpy() == 0]).all()
+
+
 def test_storage_added_to_turbulent_flux(tmp_path):
     """NEE = turbulent flux + storage; a record without storage gets a missing NEE."""
     records = _records()
