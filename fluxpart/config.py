@@ -167,6 +167,20 @@ class Config:
         response (a physical argument; measured on 12 generated site-years: day
         gaps at Rg 10–100 W m-2 filled 1.5 g C m-2 a year too negative). ``"fixed"``:
         ±`rg_tolerance` everywhere, the window of Reichstein et al. (2005).
+    gapfill_estimate : str
+        The fill of an NEE gap in the similarity steps. ``"local_linear"`` (default,
+        new in 0.21.0): the donors' mean moved by the flux's slope on Rg, Tair and
+        VPD (fitted on the same window's records within 3 tolerances of the gap)
+        times the donors' mean offset from the gap, shrunk by its reliability
+        (:func:`fluxpart.gapfill.local_linear_correction`). A mean of donors is
+        biased where a gap sits at the edge of their conditions (gaps on the hottest
+        afternoons, at the warm end of a spring fortnight); a local-linear estimate
+        removes that first-order bias (Fan & Gijbels 1996 (m)). Measured on the 168
+        generated site-years of the three benchmarks: RMS annual NEE error 5.95 →
+        5.90, 8.62 → 8.56 and 9.52 → 9.13 g C m-2, more site-years better than
+        worse in each set (11 / 8, 12 / 10, 13 / 9 by more than 0.5 g C m-2); the
+        ninth trial's hot-afternoon gaps −35.1 → −26.5 g C m-2 a year.
+        ``"donor_mean"``: the donors' mean, as Reichstein et al. (2005).
     gapfill_min_donors : int
         Fewest records a gap-filling pass must average to fill an NEE gap; 3, our
         choice: one record's random error or an undetected spike must not set a
@@ -441,6 +455,7 @@ class Config:
     storage_release: str = "exclude"
     gapfill_donors: str = "separate_day_night"
     gapfill_rg_window: str = "centred"
+    gapfill_estimate: str = "local_linear"
     gapfill_min_donors: int = 3
     gapfill_interpolation_hours: float = 3.0
     gapfill_clearness_tolerance: float = 0.0
@@ -558,6 +573,7 @@ _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "gapfill_donors": ("separate_day_night", "similar_conditions_only"),
             "storage_release": ("exclude", "warn"),
             "gapfill_rg_window": ("centred", "fixed"),
+            "gapfill_estimate": ("local_linear", "donor_mean"),
             "daytime_weighting": ("random_error", "none"),
             "ustar_method": ("moving_point", "change_point", "fixed"),
             "ustar_annual": ("median", "maximum"),

@@ -223,6 +223,13 @@ _MAX_WINDOW_DAYS = 140.0
 #: Fewest measured records a pass must find to fill a gap; our choice (see
 #: :func:`fill_marginal`).
 _MIN_DONORS = 3
+# ridge of the local-linear correction [tolerance units squared per donor]; see
+# local_linear_correction
+_SLOPE_RIDGE = 0.01
+# the local-linear slopes are fitted on the records within this many tolerances of the
+# gap (same time window); see local_linear_correction
+_SLOPE_TOLERANCES = 3.0
+ESTIMATES = ("local_linear", "donor_mean")
 #: Longest driver gap filled by linear interpolation [hours]; our choice (see
 #: :func:`fill_drivers`).
 _INTERPOLATION_HOURS = 3.0
@@ -510,7 +517,8 @@ def _block_records(n_gaps, gap_span, half_width):
     return records
 
 
-def _similar_conditions_pass(values, usable, gaps, half_width, conditions, tables):
+def _similar_conditions_pass(values, usable, gaps, half_width, conditions, tables,
+                             local_linear=False):
     """Mean, count and std of usable records similar to each gap within ±half_width.
 
     ``usable`` are the sorted record numbers of measured target records whose
@@ -518,7 +526,8 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
     pairs; ``half_width`` is in records; ``tables`` are the step's
     :class:`_RankTables`. Record j is similar to gap i when ``x[i] - tolerance
     <= x[j] <= x[i] + tolerance`` for every driver x (bounds in float64) and
-    ``|j - i| <= half_width``.
+    ``|j - i| <= half_width``. With ``local_linear`` the mean is moved by
+    :func:`local_linear_correction` for the donors' driver offset from the gap.
     """
     mean = np.full(gaps.size, np.nan)
     count = np.zeros(gaps.size, dtype=np.int64)
@@ -533,8 +542,14 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
     time_low = np.searchsorted(usable, gaps - half_width, side="left")
     time_high = np.searchsorted(usable, gaps + half_width, side="right")
     usable_values = values[usable]
+    usable_drivers = [driver[usable] for driver, _ in conditions] if local_linear else []
     lowers = [driver[gaps] - _at(tolerance, gaps) for driver, tolerance in conditions]
     uppers = [driver[gaps] + _at(tolerance, gaps) for driver, tolerance in conditions]
+    # bounds of the local-linear slope records
+    wide_lowers = [driver[gaps] - _SLOPE_TOLERANCES * _at(tolerance, gaps)
+                   for driver, tolerance in conditions] if local_linear else []
+    wide_uppers = [driver[gaps] + _SLOPE_TOLERANCES * _at(tolerance, gaps)
+                   for driver, tolerance in conditions] if local_linear else []
     for a, b in zip(starts, ends, strict=True):
         p, q = time_low[a], time_high[b - 1]
         if p == q:
@@ -544,29 +559,145 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
         keys = [(position, (time_low[a:b] - p).astype(position.dtype),
                  (time_high[a:b] - p).astype(position.dtype))]
         keys += tables.keys(p, q, [x[a:b] for x in lowers], [x[a:b] for x in uppers])
-        similar = np.ones((n_rows, width), dtype=bool)
-        scratch = np.empty_like(similar)
-        for key, low, high in keys:
-            similar &= np.greater_equal(key[None, :], low[:, None], out=scratch)
-            similar &= np.less(key[None, :], high[:, None], out=scratch)
-        # Similar pairs in row-major order: each row's records are one run.
-        flat = np.flatnonzero(similar)
-        if flat.size == 0:
+        column, n_similar = _similar_runs(keys, n_rows, width)
+        if column.size == 0:
             continue
-        n_similar = np.diff(np.searchsorted(flat, np.arange(n_rows + 1) * width))
-        column = flat - np.repeat(np.arange(n_rows) * width, n_similar)
         picked = usable_values[p:q][column]
         found = n_similar > 0
         n_found = n_similar[found]
         run_starts = np.cumsum(n_found) - n_found
         found_mean = np.add.reduceat(picked, run_starts) / n_found
-        deviation = picked - np.repeat(found_mean, n_found)
-        deviation *= deviation
+        residual = picked - np.repeat(found_mean, n_found)
         rows = np.flatnonzero(found) + a
+        if local_linear:
+            # the slope records of the gaps with donors: the same window, wider bounds
+            wide_keys = keys[:1] + tables.keys(p, q, [x[a:b] for x in wide_lowers],
+                                               [x[a:b] for x in wide_uppers])
+            wide_keys = [(key, low[found], high[found]) for key, low, high in wide_keys]
+            column_w, n_w = _similar_runs(wide_keys, n_found.size, width)
+            starts_w = np.cumsum(n_w) - n_w
+            picked_w = usable_values[p:q][column_w]
+            residual_w = picked_w - np.repeat(np.add.reduceat(picked_w, starts_w) / n_w, n_w)
+            donor_means = [np.add.reduceat(x[p:q][column], run_starts) / n_found
+                           for x in usable_drivers]
+            found_mean = found_mean + local_linear_correction(
+                residual_w, [x[p:q][column_w] for x in usable_drivers],
+                [driver[gaps[rows]] for driver, _ in conditions],
+                [_at(tolerance, gaps[rows]) for _, tolerance in conditions],
+                starts_w, n_w, donor_means)
         mean[rows] = found_mean
         count[rows] = n_found
-        spread[rows] = np.sqrt(np.add.reduceat(deviation, run_starts) / n_found)
+        spread[rows] = np.sqrt(np.add.reduceat(residual * residual, run_starts) / n_found)
     return mean, count, spread
+
+
+def _similar_runs(keys, n_rows, width):
+    """Columns of the records within every (key, low, high) bound of each row, row by row,
+    and each row's count: ``low[i] <= key[j] < high[i]`` for all keys."""
+    similar = np.ones((n_rows, width), dtype=bool)
+    scratch = np.empty_like(similar)
+    for key, low, high in keys:
+        similar &= np.greater_equal(key[None, :], low[:, None], out=scratch)
+        similar &= np.less(key[None, :], high[:, None], out=scratch)
+    # Similar pairs in row-major order: each row's records are one run.
+    flat = np.flatnonzero(similar)
+    counts = np.diff(np.searchsorted(flat, np.arange(n_rows + 1) * width))
+    return flat - np.repeat(np.arange(n_rows) * width, counts), counts
+
+
+def local_linear_correction(residual, donor_drivers, gap_drivers, tolerances, run_starts,
+                            counts, reference_means=None) -> np.ndarray:
+    """Correction of each gap's donor mean for its donors' mean driver offset [flux units].
+
+    Parameters
+    ----------
+    residual : numpy.ndarray
+        Each slope record's value minus the mean of its gap's slope records, the
+        records of all gaps in one array, each gap's records one run [flux units,
+        e.g. µmol m-2 s-1].
+    donor_drivers : list of numpy.ndarray
+        Per condition driver (Rg [W m-2], Tair [°C], VPD [hPa], ...), its value at
+        each slope record, aligned with `residual`.
+    gap_drivers : list of numpy.ndarray
+        Per condition driver, its value at each gap (one per run).
+    tolerances : list of float or numpy.ndarray
+        Per condition driver, its similarity tolerance at each gap (scalar or one per
+        run) [driver units], > 0.
+    run_starts : numpy.ndarray
+        Position in `residual` of each gap's first slope record.
+    counts : numpy.ndarray
+        Slope records per gap (>= 1).
+    reference_means : list of numpy.ndarray, optional
+        Per condition driver, the mean of each gap's donors (the records averaged
+        for its fill); None: the slope records are the donors.
+
+    Returns
+    -------
+    numpy.ndarray
+        Per gap, ``c · c² / (c² + v)``: ``c = b · (x_gap − x̄_donors)`` with ``b`` the
+        slopes of a ridge least-squares fit of the slope records' values on their
+        drivers (each driver in units of its tolerance, ridge ``0.01 × records`` on
+        the diagonal), and ``v`` the variance of ``c`` from the records' scatter.
+
+    Notes
+    -----
+    A donor mean is a local-constant estimate: where a gap sits at the edge of its
+    donors' conditions (the hottest, driest afternoons of the window lost by an
+    analyser failing in heat, the warm end of a spring fortnight), the donors lie on
+    average on one side of it and the mean is biased by the flux's slope times the
+    offset. A local-linear estimate removes that first-order boundary bias (Fan &
+    Gijbels 1996; Ruppert & Wand 1994). The donors stay those of the published
+    method and the correction is at most the slope across one tolerance, since the
+    donors' drivers lie within the tolerances of the gap's. The slope, a derivative,
+    is fitted on a wider set than the level (local polynomial practice: a derivative
+    needs a larger bandwidth than the function, Fan & Gijbels 1996): the records of
+    the same time window within 3 tolerances of the gap (±7.5 K, ±15 hPa, ±150 W m-2
+    by default), where the donors alone (a few tens of records spread over a fraction
+    of a tolerance) gave slopes too noisy to use. Two further choices keep its noise
+    small, both ours: the ridge of 0.01 (in tolerance units) shrinks the slope of a
+    driver that varies among the records by less than a tenth of its tolerance (the
+    night's Rg) towards zero, and the correction is shrunk by its reliability
+    ``c² / (c² + v)`` (an empirical-Bayes factor, Efron & Morris 1975 (m)), so a
+    correction within its own noise is mostly dropped. Slope sets of 1, 2 and 3
+    tolerances were measured on the generated benchmarks (DEVELOPERS.md, 0.21.0):
+    3 lowered the RMS NEE error of all three sets and improved more site-years than
+    it worsened in each.
+
+    References
+    ----------
+    Fan, J., Gijbels, I. (1996). Local Polynomial Modelling and Its Applications.
+    Chapman & Hall, London (m).
+
+    Ruppert, D., Wand, M. P. (1994). Multivariate locally weighted least squares
+    regression. The Annals of Statistics 22, 1346–1370 (m).
+
+    Efron, B., Morris, C. (1975). Data analysis using Stein's estimator and its
+    generalizations. Journal of the American Statistical Association 70, 311–319 (m).
+    """
+    n_gaps, k = counts.size, len(donor_drivers)
+    scaled, offset = [], np.empty((n_gaps, k))
+    for j, (x, at_gap, tolerance) in enumerate(zip(donor_drivers, gap_drivers, tolerances,
+                                                   strict=True)):
+        tolerance = np.broadcast_to(np.asarray(tolerance, dtype=float), (n_gaps,))
+        donor_mean = np.add.reduceat(x, run_starts) / counts
+        scaled.append((x - np.repeat(donor_mean, counts)) / np.repeat(tolerance, counts))
+        reference = donor_mean if reference_means is None else reference_means[j]
+        offset[:, j] = (at_gap - reference) / tolerance
+    gram = np.empty((n_gaps, k, k))
+    moment = np.empty((n_gaps, k))
+    for i in range(k):
+        moment[:, i] = np.add.reduceat(scaled[i] * residual, run_starts)
+        for j in range(i, k):
+            gram[:, i, j] = gram[:, j, i] = np.add.reduceat(scaled[i] * scaled[j], run_starts)
+    gram += _SLOPE_RIDGE * counts[:, None, None] * np.eye(k)
+    # one solve for the slopes (moment) and the leverage of the offset
+    solved = np.linalg.solve(gram, np.stack([moment, offset], axis=2))
+    correction = np.einsum("ij,ij->i", solved[:, :, 0], offset)
+    leverage = np.einsum("ij,ij->i", solved[:, :, 1], offset)
+    variance = np.add.reduceat(residual * residual, run_starts) / counts * leverage
+    square = correction * correction
+    total = square + variance
+    return np.divide(correction * square, total, out=np.zeros(n_gaps), where=total > 0)
 
 
 def _at(tolerance, gaps):
@@ -664,7 +795,7 @@ def _diurnal_course_pass(values, measured, gaps, half_width_days, per_day, diurn
 
 def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_conditions,
                  max_window_days, min_donors=1, is_night=None, interpolated=None, wanted=None,
-                 last_resort=False):
+                 last_resort=False, local_linear=False):
     """Run the pass sequence on one series; return the output columns as arrays.
 
     ``all_conditions`` are (driver, tolerance) pairs of step 1 or ``None``;
@@ -679,7 +810,8 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
     record, or ``None`` for all) limits the gaps filled; the others stay unfilled.
     ``last_resort`` runs the last-resort passes (module notes) on the gaps the
     sequence leaves: for a flux only, since a driver filled from another season
-    would pass unseen into the modelled fluxes.
+    would pass unseen into the modelled fluxes. ``local_linear`` moves the fills of
+    the similarity steps by :func:`local_linear_correction`.
     """
     n = values.size
     measured = ~np.isnan(values)
@@ -709,7 +841,8 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
         outputs = _fill_class(values, donors, remaining, passes, per_day, diurnal_records,
                               all_conditions, radiation_conditions, min_donors, course_donors,
                               last_resort=last_resort,
-                              night_class=is_night is not None and not course_from_all)
+                              night_class=is_night is not None and not course_from_all,
+                              local_linear=local_linear)
         for filled, step, half_width_days, pass_mean, pass_count, pass_spread in outputs:
             value[filled] = pass_mean
             method[filled] = step
@@ -721,7 +854,7 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
 
 def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all_conditions,
                 radiation_conditions, min_donors, course_donors, last_resort=False,
-                night_class=False):
+                night_class=False, local_linear=False):
     """Fill the gaps ``remaining`` from the records ``donors``; yield each pass's fills.
 
     With ``last_resort``, gaps the sequence leaves take the two last-resort passes
@@ -758,7 +891,7 @@ def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all
             conditions, usable, available, tables = step_inputs[step]
             gaps = np.flatnonzero(remaining & available)
             result = _similar_conditions_pass(values, usable, gaps, half_width_days * per_day,
-                                              conditions, tables)
+                                              conditions, tables, local_linear)
         _take(outputs, remaining, gaps, step, half_width_days, result, min_donors)
         if not remaining.any():
             break
@@ -905,7 +1038,8 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
                   vpd_tolerance=_VPD_TOLERANCE, max_window_days=_MAX_WINDOW_DAYS,
                   min_donors=_MIN_DONORS, gaps=None, rg_window="centred",
                   night_rg_threshold=_NIGHT_RG_THRESHOLD, clearness=None,
-                  clearness_tolerance=_CLEARNESS_TOLERANCE) -> pd.DataFrame:
+                  clearness_tolerance=_CLEARNESS_TOLERANCE,
+                  estimate="local_linear") -> pd.DataFrame:
     """Fill the gaps of a flux series by marginal distribution sampling.
 
     Parameters
@@ -972,6 +1106,13 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
     clearness_tolerance : float
         Similar clearness index within ± this [1]; default 0.15, our choice (see
         :func:`clearness_index`).
+    estimate : {"local_linear", "donor_mean"}
+        The fill of a similarity step (all drivers, radiation only).
+        ``"local_linear"`` (default since 0.21.0): the donors' mean moved by their
+        slope on the condition drivers times the donors' mean offset from the gap
+        (:func:`local_linear_correction`), which removes the bias of a gap at the
+        edge of its donors' conditions; ``"donor_mean"``: the donors' mean, as
+        Reichstein et al. (2005) fill. The diurnal-course step is a mean in both.
 
     Returns
     -------
@@ -1032,6 +1173,9 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
     if rg_window not in RG_WINDOWS:
         raise ConfigError(f"[processing] gapfill_rg_window = {rg_window!r}: expected one of "
                           f"{', '.join(repr(rule) for rule in RG_WINDOWS)}")
+    if estimate not in ESTIMATES:
+        raise ConfigError(f"[processing] gapfill_estimate = {estimate!r}: expected one of "
+                          f"{', '.join(repr(name) for name in ESTIMATES)}")
     if rg_window == "centred" and night is not None:
         threshold = _check_setting("night_rg_threshold", night_rg_threshold)
         tolerances[0] = centred_rg_tolerance(rg, night, tolerances[0], threshold)
@@ -1053,7 +1197,7 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         all_conditions=all_conditions,
         radiation_conditions=radiation_conditions,
         max_window_days=max_window_days, min_donors=min_donors, is_night=night,
-        wanted=wanted, last_resort=True)
+        wanted=wanted, last_resort=True, local_linear=estimate == "local_linear")
     return _output_frame(index, *columns)
 
 

@@ -451,7 +451,8 @@ def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None):
         min_donors=config.gapfill_min_donors, gaps=gaps, rg_window=config.gapfill_rg_window,
         night_rg_threshold=config.night_rg_threshold,
         clearness=conditions["clearness"] if "clearness" in conditions else None,
-        clearness_tolerance=config.gapfill_clearness_tolerance)
+        clearness_tolerance=config.gapfill_clearness_tolerance,
+        estimate=config.gapfill_estimate)
 
 
 def _nighttime_settings(config, rg, nearest_year=False) -> dict:

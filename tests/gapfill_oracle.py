@@ -61,15 +61,44 @@ def _quality(step, k):
     return 1 if k == 0 else 2 if k == 1 else 3
 
 
+def oracle_local_linear(picked, donor_drivers, gap_drivers, tolerances, donor_means,
+                        ridge=0.01):
+    """One gap's local-linear correction of its donor mean, written out per gap.
+
+    The slope records' values ``picked`` regressed on their drivers (each centred on
+    the slope records' mean and divided by its tolerance) by least squares with ridge
+    rows ``sqrt(ridge × records) × I`` appended (numpy.linalg.lstsq on the augmented
+    system, the textbook form of ridge regression, Hoerl & Kennard 1970 (m)); the
+    correction ``c = b · offset``, offset the gap's drivers minus the donors' means
+    (``donor_means``), is kept by the share ``c² / (c² + v)``, v its variance from the
+    slope records' scatter about their mean.
+    """
+    n, k = picked.size, len(donor_drivers)
+    centred = [(x - x.mean()) / tol for x, tol in zip(donor_drivers, tolerances, strict=True)]
+    offset = np.array([(g - m) / tol
+                       for m, g, tol in zip(donor_means, gap_drivers, tolerances, strict=True)])
+    design = np.vstack([np.column_stack(centred), np.sqrt(ridge * n) * np.eye(k)])
+    response = np.concatenate([picked - picked.mean(), np.zeros(k)])
+    slope = np.linalg.lstsq(design, response, rcond=None)[0]
+    correction = float(slope @ offset)
+    inverse = np.linalg.inv(design.T @ design)
+    variance = float(np.mean((picked - picked.mean()) ** 2) * offset @ inverse @ offset)
+    total = correction ** 2 + variance
+    return correction * correction ** 2 / total if total > 0 else 0.0
+
+
 def oracle_fill(values, per_day, hour_records, conditions, radiation_conditions,
-                max_window_days=140.0, min_donors=3, is_night=None, fixed=None):
+                max_window_days=140.0, min_donors=3, is_night=None, fixed=None,
+                local_linear=False):
     """Fill one series gap by gap; return value, method, window, count, std, quality arrays.
 
     ``conditions``: list of (driver array, tolerance) for step 1 or None;
     ``radiation_conditions``: list of (driver array, tolerance) for step 2 or None;
     ``is_night``: bool per record to fill night and day gaps from their own class;
     ``fixed``: bool per record of gaps already filled (interpolated) that stay as
-    they are, method 4 and quality 4.
+    they are, method 4 and quality 4; ``local_linear``: steps 1 and 2 add
+    :func:`oracle_local_linear` to the donors' mean, its slopes fitted on the records
+    within 3 tolerances of the gap.
     """
     y = np.asarray(values, dtype=float)
     n = y.size
@@ -117,14 +146,25 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_conditions,
                     continue  # this step needs every one of its drivers at t
                 lo, hi = max(0, t - k * per_day), min(n, t + k * per_day + 1)
                 ok = donor[lo:hi].copy()
+                wide = donor[lo:hi].copy()       # the slope records: 3 tolerances
+                at_gap = []
                 for driver, tolerance in pairs:
                     if callable(tolerance):  # a tolerance that depends on the gap
                         tolerance = tolerance(t)
+                    at_gap.append(tolerance)
                     # "within ±tolerance of the value at t", bounds in float64
                     ok &= driver[lo:hi] >= driver[t] - tolerance
                     ok &= driver[lo:hi] <= driver[t] + tolerance
+                    wide &= driver[lo:hi] >= driver[t] - 3.0 * tolerance
+                    wide &= driver[lo:hi] <= driver[t] + 3.0 * tolerance
                 picked = y[lo:hi][ok]
                 full_width = 2.0 * k
+                shift = 0.0
+                if local_linear and picked.size:
+                    shift = oracle_local_linear(
+                        y[lo:hi][wide], [driver[lo:hi][wide] for driver, _ in pairs],
+                        [driver[t] for driver, _ in pairs], at_gap,
+                        [driver[lo:hi][ok].mean() for driver, _ in pairs])
             else:
                 candidates = (t + np.arange(-k, k + 1)[:, None] * per_day
                               + np.arange(-hour_records, hour_records + 1)[None, :]).ravel()
@@ -137,7 +177,7 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_conditions,
                 picked, offset = y[candidates][used], offset[used]
                 full_width = 2.0 * k + 1.0
             if picked.size >= min_donors:
-                value[t] = picked.mean() if step in (1, 2) else np.mean(
+                value[t] = picked.mean() + shift if step in (1, 2) else np.mean(
                     [picked[offset == o].mean() for o in np.unique(offset)])  # offsets alike
                 method[t] = step
                 window[t] = full_width
@@ -151,7 +191,7 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_conditions,
 def oracle_fill_marginal(target, drivers, index, *, is_night=None, rg_tolerance=50.0,
                          tair_tolerance=2.5, vpd_tolerance=5.0, max_window_days=140.0,
                          min_donors=3, rg_window="centred", night_rg_threshold=10.0,
-                         clearness=None, clearness_tolerance=0.15):
+                         clearness=None, clearness_tolerance=0.15, estimate="local_linear"):
     """Oracle counterpart of :func:`fluxpart.gapfill.fill_marginal` (same columns).
 
     ``is_night`` None is the single rule (``donors="similar_conditions_only"``).
@@ -180,7 +220,8 @@ def oracle_fill_marginal(target, drivers, index, *, is_night=None, rg_tolerance=
         conditions, radiation = conditions + [clear], radiation + [clear]
     out = oracle_fill(target, per_day, hour_records, conditions, radiation,
                       max_window_days, min_donors,
-                      None if is_night is None else np.asarray(is_night, dtype=bool))
+                      None if is_night is None else np.asarray(is_night, dtype=bool),
+                      local_linear=estimate == "local_linear")
     names = ("value", "method", "window_days", "count", "std", "quality")
     return pd.DataFrame(dict(zip(names, out, strict=True)), index=index)
 
