@@ -67,10 +67,16 @@ _HOUR_24 = (
 #: (UTC+2). Written beside a stamp the abbreviation is the standard time itself (CET =
 #: UTC+1 all year; CEST names the summer time), so each is read as its fixed offset, a
 #: zone "Etc/GMT-h" (POSIX sign: Etc/GMT-1 is UTC+1). Offsets: the abbreviations'
-#: definitions in the IANA time-zone database's "europe" file (m).
+#: definitions in the IANA time-zone database's "europe" file (m). Their summer-time
+#: labels (CEST, MEST, EEST, WEST: one hour ahead, same file (m)) name one offset each
+#: too, so a civil-time logger that labels every stamp is read without a time_zone,
+#: its repeated autumn hour told apart by the labels. Summer labels that name other
+#: zones as well (BST: British Summer Time or Bangladesh Standard Time) are not read.
 _STANDARD_TIME_LABELS = {"CET": "Etc/GMT-1", "MET": "Etc/GMT-1", "EET": "Etc/GMT-2",
-                         "WET": "Etc/GMT"}
-_STANDARD_TIME_LABEL = re.compile(r"(?<![A-Za-z/])(CET|MET|EET|WET)(?![A-Za-z/])")
+                         "WET": "Etc/GMT", "CEST": "Etc/GMT-2", "MEST": "Etc/GMT-2",
+                         "EEST": "Etc/GMT-3", "WEST": "Etc/GMT-1"}
+_STANDARD_TIME_LABEL = re.compile(
+    r"(?<![A-Za-z/])(CEST|MEST|EEST|WEST|CET|MET|EET|WET)(?![A-Za-z/])")
 
 #: IANA zone names (or their first part) that denote a fixed offset rather than a place.
 _OFFSET_ZONE_PREFIXES = frozenset({"UTC", "Etc", "GMT", "UCT", "Zulu", "Universal"})
@@ -493,10 +499,12 @@ def _swapped_day_month(failed: pd.Series, time_format: str,
     if "%d" not in time_format or "%m" not in time_format:
         return ""
     swapped = (time_format.replace("%d", "\0").replace("%m", "%d").replace("\0", "%m"))
+    # utc=True: zone labels under %Z ("CET" read as the zone with summer time on the
+    # exchanged dates) give stamps of several offsets, which pandas refuses to mix
     if passed is not None and len(passed) and pd.to_datetime(
-            passed, format=swapped, errors="coerce").isna().any():
+            passed, format=swapped, errors="coerce", utc=True).isna().any():
         return ""
-    if pd.to_datetime(failed, format=swapped, errors="coerce").notna().all():
+    if pd.to_datetime(failed, format=swapped, errors="coerce", utc=True).notna().all():
         return ("the day and the month are exchanged (the stamps that parse up to there "
                 "were read as wrong dates): write time_format = "
                 f"{setting_text(swapped)}")
@@ -676,12 +684,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
         elif "%Z" in time_format and re.search(r"\s[A-Za-z]{2,6}$", text.iloc[first]):
-            # %Z reads UTC, GMT, the standard times CET, MET, EET, WET and zone names of
-            # the time-zone database (EST), not summer-time abbreviations (CEST, BST,
+            # %Z reads UTC, GMT, the European labels (CET, CEST, ...) and zone names of
+            # the time-zone database (EST), not other summer-time abbreviations (BST,
             # PDT), several of which are ambiguous
             hint = (f"; the zone abbreviation {text.iloc[first].split()[-1]!r} is not read "
-                    "(only UTC, GMT, the standard times CET, MET, EET, WET and time-zone "
-                    "database names such as EST): write the "
+                    "(only UTC, GMT, the European labels CET, MET, EET, WET and their summer "
+                    "times CEST, MEST, EEST, WEST, and time-zone database names such as "
+                    "EST): write the "
                     "stamps with a numeric offset (+02:00, %z), or without the abbreviation "
                     "and with [input] time_zone = \"Area/City\"")
         elif _numeric_clock(text):
