@@ -1186,6 +1186,11 @@ def _check_missing(value) -> tuple:
 def _check_delimiter(value) -> str:
     if value == _WHITESPACE:
         return value
+    if isinstance(value, str) and value.strip().lower() in ("\\t", "tab", "<tab>"):
+        # TOML reads '\t' (single quotes, a literal string) as a backslash and a t
+        raise ConfigError(f"[input] delimiter = {setting_text(value)} is {len(value)} "
+                          "characters, not the tab: write delimiter = \"\\t\" in double "
+                          "quotes (in single quotes '\\t' is a backslash and a t)")
     if not isinstance(value, str) or len(value) != 1:
         raise ConfigError(f"[input] delimiter = {setting_text(value)}: expected a single character such "
                           "as \",\", \";\" or \"\\t\", or \"whitespace\"")

@@ -1,5 +1,6 @@
 """Logger layouts of the layouts18 round: stamps labelled with European zone
-abbreviations (CET in winter, CEST in summer).
+abbreviations (CET in winter, CEST in summer), units written with a full stop for the
+product's dot, and a tab delimiter written as a word or a TOML literal string.
 
 Outside facts, each named beside its check: the IANA time-zone database as shipped with
 Python's ``zoneinfo`` (Europe/Berlin: CET = UTC+1, CEST = UTC+2, summer time from
@@ -13,8 +14,10 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart.errors import TimestampError
+from fluxpart.errors import ConfigError, TimestampError
+from fluxpart.io import read_site_config
 from fluxpart.timestamps import parse_stamps
+from fluxpart.variables import unit_spelling
 
 
 def _parse(text, time_format, utc_offset=1.0, **kwargs):
@@ -66,3 +69,43 @@ def test_a_damaged_stamp_among_cet_labels_is_named_not_a_traceback():
     with pytest.raises(TimestampError, match=re.escape("line 102 of 't.dat' has stamp "
                                                        "'2021-02-30 00:30 CET'")):
         _parse(text, "%Y-%m-%d %H:%M %Z")
+
+
+@pytest.mark.parametrize("name, written, accepted", [
+    ("nee", "µmol.m-2.s-1", "µmol m-2 s-1"),
+    ("nee", "umol.m-2.s-1", "umol m-2 s-1"),
+    ("rg", "W.m-2", "W m-2"),
+    ("rg", "W.m^-2", "W m-2"),
+    ("ustar", "m.s-1", "m s-1"),
+    ("nee", "mg CO2.m-2.s-1", "mg CO2 m-2 s-1"),
+])
+def test_a_full_stop_for_the_product_dot_is_the_same_unit(name, written, accepted):
+    """"W.m-2" writes the product of W and m-2 with a full stop for the half-high dot,
+    as typewriters and logger units lines do; the SI brochure writes a product with a
+    space or a half-high dot (BIPM 2019, section 5.4.6 (m)). It was refused with the
+    list of accepted spellings."""
+    assert unit_spelling(name, written) == accepted
+
+
+def test_a_decimal_number_in_a_unit_is_not_a_product():
+    """A period between digits stays a decimal point (no unit here has one: it stays
+    unknown, refused with the list, rather than read as another unit)."""
+    assert unit_spelling("rg", "0.5 W m-2") == "0.5 W m-2"
+
+
+@pytest.mark.parametrize("value", ["\\t", "tab", "TAB"])
+def test_a_tab_written_as_a_word_or_a_literal_backslash_t_names_the_toml_fix(tmp_path, value):
+    """In TOML a single-quoted '\\t' is a literal string: a backslash and a t (TOML 1.0,
+    "Literal strings" (m)). The message said "expected a single character such as
+    "\\t"", which looks like what was written; now it names the double quotes."""
+    config = tmp_path / "site.toml"
+    config.write_text(
+        '[site]\nname = "x"\nlatitude = 49.3\nlongitude = 10.2\nutc_offset = 1.0\n'
+        f'[input]\npath = "a.tsv"\ntime_column = "t"\ntime_format = "%Y%m%d%H%M"\n'
+        f'time_marks = "end"\ndelimiter = \'{value}\'\n'
+        '[input.columns]\nnee = "a"\nrg = "b"\ntair = "c"\nvpd = "d"\nustar = "e"\n',
+        encoding="utf-8")
+    (tmp_path / "a.tsv").write_text("t\ta\n", encoding="utf-8")
+    with pytest.raises(ConfigError, match=re.escape(
+            'not the tab: write delimiter = "\\t" in double quotes')):
+        read_site_config(config)
