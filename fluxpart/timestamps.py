@@ -260,6 +260,19 @@ def _fixed_width_stamps(text: pd.Series, time_format: str) -> pd.Series | None:
 _CLOCK_FIELD = re.compile(r"%H%M(%S)?")
 
 
+def _hour_only_offsets(text: pd.Series) -> pd.Series:
+    """Stamps ending in a UTC offset of hours alone (``+01``, ``-05``) with its minutes
+    (``+0100``), for a format ending in ``%z``.
+
+    ISO 8601 allows an offset of hours alone (``±hh``, ISO 8601:2004, 4.2.5.1 (m)) and
+    database exports write it (``2021-06-01 13:30:00+02``); pandas' ``%z`` reads it
+    after seconds but not after minutes or a space, so such a file was refused or read
+    by its format's accident. A stamp under a format ending in ``%z`` ends in its offset,
+    so the two digits after the sign are hours.
+    """
+    return text.str.replace(r"([+-]\d{2})$", r"\g<1>00", regex=True)
+
+
 def _pad_clock_fields(text: pd.Series, time_format: str) -> pd.Series:
     """Zero-pad clock fields written as integers (``30`` for ``0030`` under ``%H%M``).
 
@@ -627,6 +640,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                 f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
                 f"{text.iloc[first]!r} without a UTC offset while other stamps carry one; "
                 f"{int(naive.sum())} such stamp(s): give every stamp its offset")
+    if time_format.endswith("%z"):
+        text = _hour_only_offsets(text)
     text = _pad_clock_fields(text, time_format)
     readable = _standard_time_labels(text, time_format)
     parsed = _to_datetime(readable, time_format, utc=with_offset)

@@ -109,3 +109,17 @@ def test_a_tab_written_as_a_word_or_a_literal_backslash_t_names_the_toml_fix(tmp
     with pytest.raises(ConfigError, match=re.escape(
             'not the tab: write delimiter = "\\t" in double quotes')):
         read_site_config(config)
+
+
+@pytest.mark.parametrize("time_format, text", [
+    ("%Y-%m-%d %H:%M %z", ["2021-06-01 13:30 +02", "2021-06-01 09:00 -05"]),
+    ("%Y-%m-%d %H:%M%z", ["2021-06-01 13:30+02", "2021-06-01 09:00-05"]),
+    ("%Y-%m-%d %H:%M:%S%z", ["2021-06-01 13:30:00+02", "2021-06-01 09:00:00-05"]),
+])
+def test_utc_offsets_of_hours_alone_are_read(time_format, text):
+    """An offset of hours alone (``+02``) is ISO 8601's ``±hh`` (ISO 8601:2004,
+    4.2.5.1 (m)), as database exports write it. 13:30+02 is 11:30 UTC and 09:00-05 is
+    14:00 UTC (the offset's definition: local = UTC + offset), so 12:30 and 15:00 at a
+    site of UTC+1. After minutes or a space they had been refused ("does not match")."""
+    stamps = _parse(text, time_format, utc_offset=1.0)
+    assert list(stamps) == [pd.Timestamp("2021-06-01 12:30"), pd.Timestamp("2021-06-01 15:00")]
