@@ -2330,15 +2330,30 @@ def _combine(parts: list) -> dict:
         if repeated.any():
             first = np.flatnonzero(repeated)[:2]
             a, b = int(first[0]), int(first[1])
+            # a value in one row and none in the other completes, not contradicts: the
+            # columns named are those both rows give with different values
             differing = [name for name in names
-                         if not (values[name][a] == values[name][b]
-                                 or (np.isnan(values[name][a]) and np.isnan(values[name][b])))]
+                         if not (np.isnan(values[name][a]) or np.isnan(values[name][b])
+                                 or values[name][a] == values[name][b])]
+            one_sided = [name for name in names
+                         if np.isnan(values[name][a]) != np.isnan(values[name][b])]
+            if not differing:      # a third row of the stamp holds the contradiction
+                differing, one_sided = one_sided, []
+            differing = list(dict.fromkeys(name.split(":")[0] for name in differing))
+            one_sided = list(dict.fromkeys(name.split(":")[0] for name in one_sided))
+            fix = "remove one copy of the overlap from a file"
+            if one_sided and differing and sources[a] != sources[b]:
+                # files of two loggers joined by stamp that share a column (an air
+                # temperature both log): one value per record cannot come from both
+                fix = (f"the files complete each other in {', '.join(one_sided)}, so they "
+                       "look like two loggers' files joined by stamp: keep the column(s) of "
+                       f"{', '.join(differing)} in one of them only (in a copy), or rename "
+                       "them in the other")
             raise DuplicateTimestampError(
                 f"overlapping files disagree: stamp {pd.Timestamp(stamps[a])} is on line "
                 f"{int(lines[a])} of {sources[a]!r} and on line {int(lines[b])} of "
                 f"{sources[b]!r} with different values ({', '.join(differing)}); "
-                f"{int(pd.Index(stamps).duplicated().sum())} such stamp(s) in all: remove one "
-                "copy of the overlap from a file")
+                f"{int(pd.Index(stamps).duplicated().sum())} such stamp(s) in all: {fix}")
     conversions: dict = {}
     for part in parts:
         for key, count in part["conversions"].items():

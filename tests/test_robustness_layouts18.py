@@ -14,8 +14,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart.errors import ConfigError, TimestampError
-from fluxpart.io import read_site_config
+from fluxpart.errors import ConfigError, DuplicateTimestampError, TimestampError
+from fluxpart.io import read_site_config, read_table
 from fluxpart.timestamps import parse_stamps
 from fluxpart.variables import unit_spelling
 
@@ -123,3 +123,56 @@ def test_utc_offsets_of_hours_alone_are_read(time_format, text):
     site of UTC+1. After minutes or a space they had been refused ("does not match")."""
     stamps = _parse(text, time_format, utc_offset=1.0)
     assert list(stamps) == [pd.Timestamp("2021-06-01 12:30"), pd.Timestamp("2021-06-01 15:00")]
+
+
+def _tower(periods=48 * 20, seed=4):
+    """Invented half-hourly tower records (known truth for the reader)."""
+    starts = pd.date_range("2021-06-01 00:00", periods=periods, freq="30min")
+    rng = np.random.default_rng(seed)
+    hour = starts.hour + starts.minute / 60
+    day = np.clip(np.sin((hour - 6) / 12 * np.pi), 0, None)
+    return starts, pd.DataFrame({
+        "stamp": (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M"),
+        "fc": np.round(3 - 15 * day + rng.normal(0, 1.5, periods), 3),
+        "us": np.round(rng.uniform(0.05, 0.8, periods), 3),
+        "sw": np.round(800 * day, 1),
+        "ta": np.round(14 + 8 * day, 2),
+        "vpd": np.round(2 + 14 * day, 2),
+    })
+
+
+def _read_pair(tmp_path, flux, met):
+    flux.to_csv(tmp_path / "flux.csv", index=False)
+    met.to_csv(tmp_path / "met.csv", index=False)
+    return read_table([tmp_path / "flux.csv", tmp_path / "met.csv"],
+                      columns={"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta",
+                               "vpd": "vpd"},
+                      time_column="stamp", time_format="%Y-%m-%d %H:%M", time_marks="end")
+
+
+def test_two_loggers_sharing_a_column_that_disagrees_name_only_that_column(tmp_path):
+    """A flux logger's file and a meteorological logger's file of one period are joined
+    by stamp; both log an air temperature, 0.3 K apart (two sensors). The refusal listed
+    every variable as "different values" (those only one file gives included) and told
+    to remove a copy of the overlap, which would remove NEE or the drivers. Now it names
+    the column that disagrees and the fix; a plain overlap keeps its own fix."""
+    starts, records = _tower()
+    flux = records[["stamp", "fc", "us", "ta"]].copy()
+    flux["ta"] = np.round(flux["ta"] + 0.3, 2)
+    met = records[["stamp", "sw", "ta", "vpd"]]
+    with pytest.raises(DuplicateTimestampError, match=re.escape(
+            "with different values (tair); 960 such stamp(s) in all: the files complete each "
+            "other in nee, ustar, rg, vpd")) as caught:
+        _read_pair(tmp_path, flux, met)
+    assert "keep the column(s) of tair in one of them only" in str(caught.value)
+    # the same sensor in both files: joined, every value as written
+    frame, _ = _read_pair(tmp_path, records[["stamp", "fc", "us", "ta"]], met)
+    assert np.array_equal(frame["tair"].to_numpy(), records["ta"].to_numpy())
+    assert np.array_equal(frame["nee"].to_numpy(), records["fc"].to_numpy())
+    # two copies of one file, one value edited: the plain overlap fix, the column named
+    edited = records.copy()
+    edited.loc[5, "fc"] += 1.0
+    with pytest.raises(DuplicateTimestampError, match=re.escape(
+            "with different values (nee); 1 such stamp(s) in all: remove one copy of the "
+            "overlap from a file")):
+        _read_pair(tmp_path, records, edited)
