@@ -80,6 +80,7 @@ from .variables import (
     READER_VARIABLES,
     REQUIRED,
     VARIABLES,
+    same_unit_key,
     to_canonical,
     unit_spelling,
     units_for,
@@ -2019,9 +2020,11 @@ def _header_rows_warning(parts: list) -> str | None:
         for part in parts:
             other = part["header_rows"].get(name)
             if other is not None:
-                seen.setdefault(other[1], part["source"])
+                # one unit in two spellings or two encodings ("°C", "Â°C") is no change
+                key = tuple(same_unit_key(name.split(":")[0], cell) for cell in other[1])
+                seen.setdefault(key, (other[1], part["source"]))
         if len(seen) > 1:
-            (first, first_source), (second, second_source) = list(seen.items())[:2]
+            (first, first_source), (second, second_source) = list(seen.values())[:2]
             differing.append(f"{column!r} ({name.split(':')[0]}) has "
                              f"{' | '.join(first)!r} in {first_source!r} but "
                              f"{' | '.join(second)!r} in {second_source!r}")

@@ -238,6 +238,38 @@ def unit_spelling(name: str, unit: str) -> str:
     return same[0] if same else unit
 
 
+def same_unit_key(name: str, cell: str):
+    """A key that two cells of a units line share where they write one unit of `name`.
+
+    Cells are compared as :func:`unit_spelling` reads them, after undoing UTF-8 text
+    decoded as a single-byte encoding ("Â°C" for "°C": each non-ASCII character read as
+    two bytes, as when a logger program's update changed the file encoding): spellings
+    of one unit with the same conversion ("umol/m2/s" and "µmol m-2 s-1", "C" and "°C")
+    get one key. Anything else (a statistic such as "Avg", an unknown unit) is its own
+    text.
+
+    Examples
+    --------
+    >>> same_unit_key("tair", "\u00c2\u00b0C") == same_unit_key("tair", "degC")
+    True
+    >>> same_unit_key("vpd", "kPa") == same_unit_key("vpd", "hPa")
+    False
+    """
+    text = cell.strip() if isinstance(cell, str) else cell
+    if isinstance(text, str):
+        for single_byte in ("cp1252", "latin-1"):
+            try:
+                text = text.encode(single_byte).decode("utf-8")
+                break
+            except (UnicodeEncodeError, UnicodeDecodeError):
+                continue
+    spelled = unit_spelling(name, text)
+    conversion = _CONVERSIONS.get(name, {}).get(spelled)
+    if conversion is None:
+        return ("text", text)
+    return ("unit", conversion, (name, spelled) in PER_INTERVAL_UNITS)
+
+
 def to_canonical(values, name: str, unit: str | None = None, *,
                  interval_minutes: float | None = None) -> np.ndarray:
     """Convert `values` of variable `name` from `unit` to its canonical unit.

@@ -176,3 +176,38 @@ def test_two_loggers_sharing_a_column_that_disagrees_name_only_that_column(tmp_p
             "with different values (nee); 1 such stamp(s) in all: remove one copy of the "
             "overlap from a file")):
         _read_pair(tmp_path, records, edited)
+
+
+@pytest.mark.parametrize("second_units, warned", [
+    ("{stamp},umol/m^2/s,W/m^2,Deg C,hPa,m/s", False),   # another notation of each unit
+    ("{stamp},µmol m-2 s-1,W m-2,\u00c2\u00b0C,hPa,m s-1", False),  # UTF-8 '°C' as latin-1
+    ("{stamp},µmol m-2 s-1,W m-2,°C,kPa,m s-1", True),     # VPD's unit changed: warned
+])
+def test_units_lines_in_another_spelling_or_encoding_are_no_unit_change(
+        tmp_path, second_units, warned):
+    """Two half-year files whose units lines write one unit in two notations or two
+    encodings (a logger program's update wrote UTF-8 where the first file is latin-1, so
+    with encoding = "latin-1" its '°C' reads 'Â°C': UTF-8 encodes U+00B0 as the bytes
+    C2 B0 (RFC 3629 (m))) were warned as "a unit changed during the record", a false
+    alarm beside the real one (hPa to kPa, 1 kPa = 10 hPa by the SI prefixes)."""
+    _, records = _tower(periods=48 * 30)
+    header = "stamp,fc,sw,ta,vpd,us"
+    first_units = "{stamp},µmol m-2 s-1,W m-2,°C,hPa,m s-1"
+    halves = (records.iloc[:720], records.iloc[720:])
+    for name, half, units, encoding in (("a.csv", halves[0], first_units, "latin-1"),
+                                        ("b.csv", halves[1], second_units, "utf-8")):
+        rows = half[["stamp", "fc", "sw", "ta", "vpd", "us"]].astype(str).agg(",".join, axis=1)
+        text = "\n".join([header, units.format(stamp="yyyy-mm-dd HH:MM"), *rows]) + "\n"
+        if "\u00c2" in text:                       # the UTF-8 bytes of '°', as written
+            text = text.replace("\u00c2\u00b0", "°")
+        (tmp_path / name).write_bytes(text.encode(encoding))
+    frame, report = read_table([tmp_path / "a.csv", tmp_path / "b.csv"],
+                               columns={"nee": "fc", "rg": "sw", "tair": "ta", "vpd": "vpd",
+                                        "ustar": "us"},
+                               time_column="stamp", time_format="%Y-%m-%d %H:%M",
+                               time_marks="end", encoding="latin-1", rows_after_header=1)
+    noted = [w for w in report.warnings if "lines under the header" in w]
+    assert len(noted) == (1 if warned else 0)
+    if warned:
+        assert "'vpd' (vpd) has 'hPa' in" in noted[0] and "but 'kPa' in" in noted[0]
+    assert np.array_equal(frame["tair"].to_numpy(), records["ta"].to_numpy())
