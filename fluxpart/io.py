@@ -1046,17 +1046,31 @@ def _resolve_paths(value, folder: Path) -> tuple:
                               "home folder in a site config; write the path relative to the "
                               f"site config or in full (e.g. {str(Path(item).expanduser())!r})")
         if _GLOB_CHARACTERS & set(item):
-            pattern = item if Path(item).is_absolute() else str(folder / item)
+            # the config's own folder is a place, not a pattern: "Site [A]/" holds brackets
+            pattern = item if Path(item).is_absolute() else str(
+                Path(glob.escape(str(folder))) / item)
             # "**" spans any depth of folders (logger/2021/06/...), as in [batch] sites
             matches = sorted(Path(p) for p in glob.glob(pattern, recursive=True)
                              if Path(p).is_file())
+            literal = Path(item) if Path(item).is_absolute() else folder / item
+            if literal.is_file():
+                # a file whose name holds a glob character ("tower[1].csv"): that file
+                matches = [literal]
+            elif not matches and "[" in item:
+                # brackets in a folder's or file's name ("Tower [old]/q_*.csv") are a
+                # character class to glob, which then matches nothing: read them as written
+                escaped = item.replace("[", "[[]")
+                escaped = escaped if Path(item).is_absolute() else str(
+                    Path(glob.escape(str(folder))) / escaped)
+                matches = sorted(Path(p) for p in glob.glob(escaped, recursive=True)
+                                 if Path(p).is_file())
             if not matches:
                 # a glob's backslash is part of a name outside Windows (as for one file)
                 slashes = ("; write the path with forward slashes ('/'), which work on every "
                            "system: a backslash is part of the file name outside Windows"
                            if "\\" in item else "")
                 raise ConfigError(f"[input] path = {setting_text(item)} matches no file in "
-                                  f"{str(Path(pattern).parent)!r}{slashes}")
+                                  f"{str(literal.parent)!r}{slashes}")
             configs = [p for p in matches if p.suffix.lower() == ".toml"]
             if configs:
                 # a pattern as wide as "*" also takes the site config (and its neighbours)

@@ -211,3 +211,33 @@ def test_units_lines_in_another_spelling_or_encoding_are_no_unit_change(
     if warned:
         assert "'vpd' (vpd) has 'hPa' in" in noted[0] and "but 'kPa' in" in noted[0]
     assert np.array_equal(frame["tair"].to_numpy(), records["ta"].to_numpy())
+
+
+@pytest.mark.parametrize("folder, files, path", [
+    ("Site [A]", ["q_01.csv", "q_02.csv"], "q_*.csv"),        # the config's folder
+    ("site", ["Tower [old]/q_01.csv", "Tower [old]/q_02.csv"], "Tower [old]/q_*.csv"),
+    ("site", ["tower[1].csv"], "tower[1].csv"),              # one file, named literally
+])
+def test_brackets_in_folder_and_file_names_are_read_as_written(tmp_path, folder, files, path):
+    """Brackets are a character class to glob (Python's glob/fnmatch documentation:
+    "[seq] matches any character in seq"), so a config in "Site [A]/", a folder
+    "Tower [old]" or a file "tower[1].csv" (names a file manager gives copies) had
+    "matched no file" although the files are there. Read as written now, each file once,
+    its records as written (known-truth recovery)."""
+    site = tmp_path / folder
+    _, records = _tower(periods=48 * 4)
+    parts = np.array_split(np.arange(len(records)), len(files))
+    for name, rows in zip(files, parts, strict=True):
+        (site / name).parent.mkdir(parents=True, exist_ok=True)
+        records.iloc[rows][["stamp", "fc", "us", "sw", "ta", "vpd"]].to_csv(site / name,
+                                                                            index=False)
+    (site / "site.toml").write_text(
+        '[site]\nname = "x"\nlatitude = 49.3\nlongitude = 10.2\nutc_offset = 1.0\n'
+        f'[input]\npath = "{path}"\ntime_column = "stamp"\n'
+        'time_format = "%Y-%m-%d %H:%M"\ntime_marks = "end"\n'
+        '[input.columns]\nnee = "fc"\nrg = "sw"\ntair = "ta"\nvpd = "vpd"\nustar = "us"\n',
+        encoding="utf-8")
+    config = read_site_config(site / "site.toml")
+    assert sorted(config.input_paths) == sorted(site / name for name in files)
+    frame, _ = config.read()
+    assert np.array_equal(frame["nee"].to_numpy(), records["fc"].to_numpy())
