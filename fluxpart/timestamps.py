@@ -459,6 +459,35 @@ def _finer_stamp(stamp: str, time_format: str) -> str:
     return ""
 
 
+def _mixed_forms(hint: str, text: pd.Series, failed: np.ndarray, skipped: np.ndarray,
+                 time_format: str, source: str, lines: np.ndarray) -> str:
+    """`hint`, or where it proposes another time_format that the stamps read so far do
+    not match, a hint naming the file's two forms of stamp.
+
+    A logger program or export changed the stamps' form within a file (seconds added,
+    a two-digit year, AM/PM): the format proposed for the failing stamps would fail
+    the others, and one time_format reads every stamp of every file. `skipped`: the
+    failing stamps and those read in another way (hour 24, a date alone).
+    """
+    proposed = re.search(r'time_format = "((?:[^"\\]|\\.)*)"', hint)
+    if proposed is None or skipped.all() or time_format.upper() == "ISO8601":
+        return hint
+    candidate = proposed.group(1).replace('\\"', '"').replace("\\\\", "\\")
+    passed = np.flatnonzero(~skipped)
+    sample = passed[np.linspace(0, len(passed) - 1, min(len(passed), 25)).astype(int)]
+    for row in sample:
+        try:
+            datetime.strptime(text.iloc[row].strip(), candidate)
+        except ValueError:
+            first = int(np.flatnonzero(failed)[0])
+            return (f"; the file writes its stamps in two forms ({text.iloc[row]!r} on "
+                    f"line {int(lines[row])}, {text.iloc[first]!r} from line "
+                    f"{int(lines[first])}), and time_format = "
+                    f"{setting_text(candidate)} would read only the second: one time_format "
+                    "reads every stamp, so write them in one form in a copy of the file")
+    return hint
+
+
 def _other_format(stamp: str, time_format: str) -> str:
     """A hint where a stamp fails only for a 12-hour clock, a two-digit year or seconds
     written in one of stamp and format but not the other, else ''."""
@@ -719,6 +748,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
+        hint = _mixed_forms(hint, text, failed, failed | is_24 | date_only, time_format,
+                            source, lines)
         raise TimestampError(
             f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
             f"{text.iloc[first]!r}, which does not match time_format = {setting_text(time_format)}; "

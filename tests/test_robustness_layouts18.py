@@ -241,3 +241,25 @@ def test_brackets_in_folder_and_file_names_are_read_as_written(tmp_path, folder,
     assert sorted(config.input_paths) == sorted(site / name for name in files)
     frame, _ = config.read()
     assert np.array_equal(frame["nee"].to_numpy(), records["fc"].to_numpy())
+
+
+@pytest.mark.parametrize("later, proposed", [
+    ("%Y-%m-%d %H:%M:%S", '"%Y-%m-%d %H:%M:%S"'),    # seconds added by a program update
+    ("%y-%m-%d %H:%M", '"%y-%m-%d %H:%M"'),          # a two-digit year from an export
+])
+def test_stamps_that_change_their_form_midfile_are_named_as_two_forms(later, proposed):
+    """Stamps written in one form up to a line and in another after it: the hint for the
+    first failing stamp proposed the format of the second form, which fails every stamp
+    of the first (strptime reads a field only as its format writes it: Python
+    documentation of ``datetime.strptime``); following it, the user was refused again
+    at line 2. Now both forms are named."""
+    truth = pd.date_range("2021-01-01 00:30", periods=400, freq="30min")
+    text = list(truth[:300].strftime("%Y-%m-%d %H:%M")) + list(truth[300:].strftime(later))
+    with pytest.raises(TimestampError, match=re.escape(
+            "the file writes its stamps in two forms ('2021-01-01 00:30' on line 2, "
+            f"'{truth[300].strftime(later)}' from line 302), and time_format = {proposed} "
+            "would read only the second")):
+        _parse(text, "%Y-%m-%d %H:%M")
+    # every stamp in the second form: the proposed format, as before
+    with pytest.raises(TimestampError, match=re.escape(f"time_format = {proposed}")):
+        _parse(list(truth.strftime(later)), "%Y-%m-%d %H:%M")
