@@ -27,12 +27,15 @@ written.
 
 from __future__ import annotations
 
+import bz2
 import codecs
 import csv
 import difflib
 import glob
+import gzip
 import hashlib
 import io as _io
+import lzma
 import math
 import re
 import unicodedata
@@ -1379,6 +1382,36 @@ def _case_hint(path: Path) -> str:
             "(file names are case-sensitive here)" if same else "")
 
 
+#: Leading bytes of the single-file compressors a logger folder or an archive copy
+#: holds (gzip RFC 1952, bzip2, xz (m)), and their modules.
+_COMPRESSED = ((b"\x1f\x8b", "gzip", gzip), (b"BZh", "bzip2", bz2),
+               (b"\xfd7zXZ\x00", "xz", lzma))
+
+
+def _decompressed(data: bytes, path: Path) -> bytes:
+    """The bytes of a gzip-, bzip2- or xz-compressed file decompressed, else `data`.
+
+    A compressed text table is the table: read it as the file it holds (by its leading
+    bytes, whatever its name), its hash still the compressed file's. A tar archive
+    inside (``.tar.gz``: several files) is refused by name, as are zip archives.
+    """
+    for magic, name, module in _COMPRESSED:
+        if data.startswith(magic) and (name != "bzip2" or data[4:10] == b"1AY&SY"):
+            try:
+                data = module.decompress(data)
+            except (OSError, EOFError, ValueError, lzma.LZMAError) as error:
+                raise InputFileError(
+                    f"input file {str(path)!r} is {name}-compressed but cannot be "
+                    f"decompressed ({error}): a copy cut short? Copy it again") from None
+            if data[257:262] == b"ustar":
+                raise InputFileError(
+                    f"[input] path: {str(path)!r} is a {name}-compressed tar archive (files "
+                    "packed together), not a text table; unpack it and point [input] path "
+                    "at the text files")
+            return data
+    return data
+
+
 def _decode(path: Path, encoding) -> tuple[str, str]:
     """Return the file's text and the encoding used (detected if `encoding` is None)."""
     _require_input_file(path)
@@ -1386,6 +1419,7 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
         data = path.read_bytes()
     except OSError as error:
         raise InputFileError(f"input file {str(path)!r} cannot be read: {error}") from None
+    data = _decompressed(data, path)
     refuse_binary(data, path)
     # a byte-order mark names the encoding, also over [input] encoding: a file saved with
     # one among files of a declared single-byte encoding (read as such, its header would

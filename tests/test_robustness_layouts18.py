@@ -14,7 +14,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart.errors import ConfigError, DuplicateTimestampError, TimestampError
+from fluxpart.errors import ConfigError, DuplicateTimestampError, InputFileError, TimestampError
 from fluxpart.io import read_site_config, read_table
 from fluxpart.timestamps import parse_stamps
 from fluxpart.variables import unit_spelling
@@ -263,3 +263,35 @@ def test_stamps_that_change_their_form_midfile_are_named_as_two_forms(later, pro
     # every stamp in the second form: the proposed format, as before
     with pytest.raises(TimestampError, match=re.escape(f"time_format = {proposed}")):
         _parse(list(truth.strftime(later)), "%Y-%m-%d %H:%M")
+
+
+@pytest.mark.parametrize("kind", ["gzip", "bzip2", "xz"])
+def test_a_compressed_table_is_read_as_the_table_it_holds(tmp_path, kind):
+    """gzip, bzip2 and xz files hold one file each (the standard library's ``gzip``,
+    ``bz2`` and ``lzma`` modules write them; gzip: RFC 1952 (m)); a logger folder or an
+    archived year keeps tables so. They were refused ("decompress it"); read now, by
+    their leading bytes, as the text they hold (known-truth recovery: every value as
+    written). A truncated copy and a tar archive inside are named."""
+    import bz2
+    import gzip
+    import lzma
+    import tarfile
+
+    _, records = _tower(periods=48 * 4)
+    text = records[["stamp", "fc", "us", "sw", "ta", "vpd"]].to_csv(index=False).encode()
+    packer = {"gzip": gzip.compress, "bzip2": bz2.compress, "xz": lzma.compress}[kind]
+    options = {"columns": {"nee": "fc", "rg": "sw", "tair": "ta", "vpd": "vpd", "ustar": "us"},
+               "time_column": "stamp", "time_format": "%Y-%m-%d %H:%M", "time_marks": "end"}
+    (tmp_path / "tower.csv.packed").write_bytes(packer(text))
+    frame, _ = read_table(tmp_path / "tower.csv.packed", **options)
+    assert np.array_equal(frame["nee"].to_numpy(), records["fc"].to_numpy())
+    (tmp_path / "cut.csv.packed").write_bytes(packer(text)[:-40])
+    with pytest.raises(InputFileError, match=rf"cut.csv.packed' is {kind}-compressed but "
+                       "cannot be decompressed"):
+        read_table(tmp_path / "cut.csv.packed", **options)
+    archive = tmp_path / "year.tar"
+    with tarfile.open(archive, "w") as tar:
+        tar.add(tmp_path / "tower.csv.packed", arcname="tower.csv")
+    (tmp_path / "year.tar.packed").write_bytes(packer(archive.read_bytes()))
+    with pytest.raises(InputFileError, match=rf"is a {kind}-compressed tar archive"):
+        read_table(tmp_path / "year.tar.packed", **options)
