@@ -671,6 +671,10 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                 f"{int(naive.sum())} such stamp(s): give every stamp its offset")
     if time_format.endswith("%z"):
         text = _hour_only_offsets(text)
+    if "%p" in time_format:
+        # "a.m." and "p.m." (style guides' spelling, some locales' exports) are AM and PM;
+        # %p reads the letters alone, in either case
+        text = text.str.replace(r"(?i)(?<![A-Za-z])([ap])\.\s?m\.", r"\1m", regex=True)
     text = _pad_clock_fields(text, time_format)
     readable = _standard_time_labels(text, time_format)
     parsed = _to_datetime(readable, time_format, utc=with_offset)

@@ -295,3 +295,15 @@ def test_a_compressed_table_is_read_as_the_table_it_holds(tmp_path, kind):
     (tmp_path / "year.tar.packed").write_bytes(packer(archive.read_bytes()))
     with pytest.raises(InputFileError, match=rf"is a {kind}-compressed tar archive"):
         read_table(tmp_path / "year.tar.packed", **options)
+
+
+def test_am_and_pm_written_with_full_stops_are_read():
+    """"12:30 a.m." is 00:30 and "1:00 p.m." is 13:00 (the 12-hour clock: 12 a.m. is
+    midnight, Python documentation of ``%I``/``%p`` (m)); style guides and some locales'
+    exports write the full stops, which %p (the letters AM/PM) did not read: refused
+    with no hint before."""
+    text = ["01/02/2021 12:30 a.m.", "01/02/2021 1:00 p.m.", "01/02/2021 11:30 P.M.",
+            "01/02/2021 9:30 AM"]
+    stamps = _parse(text, "%m/%d/%Y %I:%M %p")
+    assert list(stamps) == [pd.Timestamp("2021-01-02 00:30"), pd.Timestamp("2021-01-02 13:00"),
+                            pd.Timestamp("2021-01-02 23:30"), pd.Timestamp("2021-01-02 09:30")]
