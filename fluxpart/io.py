@@ -1426,6 +1426,9 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
     # begin with "ï»¿")
     if data.startswith(codecs.BOM_UTF8):
         encoding = "utf-8-sig"
+    elif data.startswith((codecs.BOM_UTF32_LE, codecs.BOM_UTF32_BE)):
+        # before UTF-16: the UTF-32 LE mark FF FE 00 00 begins with UTF-16 LE's FF FE
+        encoding = "utf-32"
     elif data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
         encoding = "utf-16"
     elif encoding is None:

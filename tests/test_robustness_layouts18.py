@@ -307,3 +307,21 @@ def test_am_and_pm_written_with_full_stops_are_read():
     stamps = _parse(text, "%m/%d/%Y %I:%M %p")
     assert list(stamps) == [pd.Timestamp("2021-01-02 00:30"), pd.Timestamp("2021-01-02 13:00"),
                             pd.Timestamp("2021-01-02 23:30"), pd.Timestamp("2021-01-02 09:30")]
+
+
+@pytest.mark.parametrize("encoding", ["utf-32", "utf-32-be"])
+def test_a_utf32_file_with_its_mark_is_read(tmp_path, encoding):
+    """The UTF-32 LE byte-order mark FF FE 00 00 begins with UTF-16 LE's FF FE (Unicode
+    standard, byte-order marks (m); Python's ``codecs.BOM_UTF32_LE``): such a file was
+    read as UTF-16 and refused with the fix encoding = "utf-16", which cannot read it.
+    Now read by its mark (known-truth recovery: every value as written)."""
+    _, records = _tower(periods=48 * 4)
+    text = records[["stamp", "fc", "us", "sw", "ta", "vpd"]].to_csv(index=False)
+    data = text.encode("utf-32") if encoding == "utf-32" else (
+        b"\x00\x00\xfe\xff" + text.encode("utf-32-be"))
+    (tmp_path / "t.csv").write_bytes(data)
+    frame, _ = read_table(tmp_path / "t.csv",
+                          columns={"nee": "fc", "rg": "sw", "tair": "ta", "vpd": "vpd",
+                                   "ustar": "us"},
+                          time_column="stamp", time_format="%Y-%m-%d %H:%M", time_marks="end")
+    assert np.array_equal(frame["nee"].to_numpy(), records["fc"].to_numpy())
