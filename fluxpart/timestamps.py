@@ -553,6 +553,38 @@ def _swapped_day_month(failed: pd.Series, time_format: str,
     return ""
 
 
+def _exchanged_spread(text: pd.Series, parsed: pd.Series, plain: np.ndarray,
+                      time_format: str, utc: bool) -> str:
+    """A message where every stamp parses both as written and with %d and %m exchanged,
+    and the stamps as written spread over four times the time they cover exchanged.
+
+    A record of the first 11 days of a month written month-first (06/01 ... 06/11)
+    parses under a day-first format as the 6th of eleven months: no stamp fails, so
+    :func:`_swapped_day_month` never speaks, and the record becomes eleven days spread
+    over eleven months with 97 % of its stamps inserted as missing. Read the other way
+    the same stamps are a short record; a record is written in one calendar order, and a
+    true day-first record of days 1 to 12 read exchanged spreads instead, so it passes.
+    Else ''.
+    """
+    if "%d" not in time_format or "%m" not in time_format or plain.sum() < 2:
+        return ""
+    kept = pd.DatetimeIndex(parsed[plain])
+    if kept.day.max() > 12:
+        return ""
+    swapped = time_format.replace("%d", "\0").replace("%m", "%d").replace("\0", "%m")
+    other = pd.to_datetime(text[plain], format=swapped, errors="coerce", utc=utc)
+    if other.isna().any():
+        return ""
+    spread = kept.max() - kept.min()
+    other_spread = other.max() - other.min()
+    if spread <= pd.Timedelta(days=20) or other_spread * 4 > spread:
+        return ""
+    return (f"parse both day-first and month-first: read as time_format = "
+            f"{setting_text(time_format)} they spread over {spread.days} days, read with "
+            f"the day and the month exchanged they are {other_spread / pd.Timedelta(days=1):.1f} "
+            f"days of records: write time_format = {setting_text(swapped)}")
+
+
 def _fraction_hint(failed: pd.Series, time_format: str) -> str:
     """A hint where stamps that fail hold numbers with a decimal fraction (a decimal day
     of year or hour; integers saved from a table of floating-point numbers), else ''."""
@@ -758,6 +790,11 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
             f"{text.iloc[first]!r}, which does not match time_format = {setting_text(time_format)}; "
             f"{int(failed.sum())} stamp(s) fail to parse{hint}")
+    exchanged = _exchanged_spread(readable, parsed, ~(is_24 | date_only), time_format,
+                                  with_offset)
+    if exchanged:
+        raise TimestampError(f"{_time_setting(time_columns)}: the stamps of {source!r} "
+                             f"{exchanged}")
     index = pd.DatetimeIndex(parsed)
     index, rounded = _round_to_minute(index)
     offset_converted = 0

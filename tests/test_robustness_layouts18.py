@@ -325,3 +325,20 @@ def test_a_utf32_file_with_its_mark_is_read(tmp_path, encoding):
                                    "ustar": "us"},
                           time_column="stamp", time_format="%Y-%m-%d %H:%M", time_marks="end")
     assert np.array_equal(frame["nee"].to_numpy(), records["fc"].to_numpy())
+
+
+def test_a_short_month_first_record_read_day_first_is_named():
+    """The first eleven days of June written month-first (06/01/2021 ... 06/12/2021
+    00:00) all parse under a day-first format, as the 6th of January to November (a
+    date's day is at most 12 in every one: Gregorian calendar); the record became
+    eleven days spread over eleven months, 97 % of its stamps inserted as missing, with
+    only a warning to check interval_minutes. Now the exchanged format is named. A true
+    day-first record of the same days (01/06 ... 12/06) still reads."""
+    truth = pd.date_range("2021-06-01 00:30", "2021-06-12 00:00", freq="30min")
+    with pytest.raises(TimestampError, match=re.escape(
+            "parse both day-first and month-first: read as time_format = "
+            '"%d/%m/%Y %H:%M" they spread over 333 days, read with the day and the month '
+            'exchanged they are 11.0 days of records: write time_format = "%m/%d/%Y %H:%M"')):
+        _parse(list(truth.strftime("%m/%d/%Y %H:%M")), "%d/%m/%Y %H:%M")
+    assert list(_parse(list(truth.strftime("%d/%m/%Y %H:%M")), "%d/%m/%Y %H:%M")) == list(truth)
+    assert list(_parse(list(truth.strftime("%m/%d/%Y %H:%M")), "%m/%d/%Y %H:%M")) == list(truth)
