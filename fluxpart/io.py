@@ -27,12 +27,15 @@ written.
 
 from __future__ import annotations
 
+import bz2
 import codecs
 import csv
 import difflib
 import glob
+import gzip
 import hashlib
 import io as _io
+import lzma
 import math
 import re
 import unicodedata
@@ -80,6 +83,7 @@ from .variables import (
     READER_VARIABLES,
     REQUIRED,
     VARIABLES,
+    same_unit_key,
     to_canonical,
     unit_spelling,
     units_for,
@@ -1051,17 +1055,31 @@ def _resolve_paths(value, folder: Path) -> tuple:
                               "home folder in a site config; write the path relative to the "
                               f"site config or in full (e.g. {str(Path(item).expanduser())!r})")
         if _GLOB_CHARACTERS & set(item):
-            pattern = item if Path(item).is_absolute() else str(folder / item)
+            # the config's own folder is a place, not a pattern: "Site [A]/" holds brackets
+            pattern = item if Path(item).is_absolute() else str(
+                Path(glob.escape(str(folder))) / item)
             # "**" spans any depth of folders (logger/2021/06/...), as in [batch] sites
             matches = sorted(Path(p) for p in glob.glob(pattern, recursive=True)
                              if Path(p).is_file())
+            literal = Path(item) if Path(item).is_absolute() else folder / item
+            if literal.is_file():
+                # a file whose name holds a glob character ("tower[1].csv"): that file
+                matches = [literal]
+            elif not matches and "[" in item:
+                # brackets in a folder's or file's name ("Tower [old]/q_*.csv") are a
+                # character class to glob, which then matches nothing: read them as written
+                escaped = item.replace("[", "[[]")
+                escaped = escaped if Path(item).is_absolute() else str(
+                    Path(glob.escape(str(folder))) / escaped)
+                matches = sorted(Path(p) for p in glob.glob(escaped, recursive=True)
+                                 if Path(p).is_file())
             if not matches:
                 # a glob's backslash is part of a name outside Windows (as for one file)
                 slashes = ("; write the path with forward slashes ('/'), which work on every "
                            "system: a backslash is part of the file name outside Windows"
                            if "\\" in item else "")
                 raise ConfigError(f"[input] path = {setting_text(item)} matches no file in "
-                                  f"{str(Path(pattern).parent)!r}{slashes}")
+                                  f"{str(literal.parent)!r}{slashes}")
             configs = [p for p in matches if p.suffix.lower() == ".toml"]
             if configs:
                 # a pattern as wide as "*" also takes the site config (and its neighbours)
@@ -1192,6 +1210,11 @@ def _check_missing(value) -> tuple:
 def _check_delimiter(value) -> str:
     if value == _WHITESPACE:
         return value
+    if isinstance(value, str) and value.strip().lower() in ("\\t", "tab", "<tab>"):
+        # TOML reads '\t' (single quotes, a literal string) as a backslash and a t
+        raise ConfigError(f"[input] delimiter = {setting_text(value)} is {len(value)} "
+                          "characters, not the tab: write delimiter = \"\\t\" in double "
+                          "quotes (in single quotes '\\t' is a backslash and a t)")
     if not isinstance(value, str) or len(value) != 1:
         raise ConfigError(f"[input] delimiter = {setting_text(value)}: expected a single character such "
                           "as \",\", \";\" or \"\\t\", or \"whitespace\"")
@@ -1388,6 +1411,36 @@ def _case_hint(path: Path) -> str:
             "(file names are case-sensitive here)" if same else "")
 
 
+#: Leading bytes of the single-file compressors a logger folder or an archive copy
+#: holds (gzip RFC 1952, bzip2, xz (m)), and their modules.
+_COMPRESSED = ((b"\x1f\x8b", "gzip", gzip), (b"BZh", "bzip2", bz2),
+               (b"\xfd7zXZ\x00", "xz", lzma))
+
+
+def _decompressed(data: bytes, path: Path) -> bytes:
+    """The bytes of a gzip-, bzip2- or xz-compressed file decompressed, else `data`.
+
+    A compressed text table is the table: read it as the file it holds (by its leading
+    bytes, whatever its name), its hash still the compressed file's. A tar archive
+    inside (``.tar.gz``: several files) is refused by name, as are zip archives.
+    """
+    for magic, name, module in _COMPRESSED:
+        if data.startswith(magic) and (name != "bzip2" or data[4:10] == b"1AY&SY"):
+            try:
+                data = module.decompress(data)
+            except (OSError, EOFError, ValueError, lzma.LZMAError) as error:
+                raise InputFileError(
+                    f"input file {str(path)!r} is {name}-compressed but cannot be "
+                    f"decompressed ({error}): a copy cut short? Copy it again") from None
+            if data[257:262] == b"ustar":
+                raise InputFileError(
+                    f"[input] path: {str(path)!r} is a {name}-compressed tar archive (files "
+                    "packed together), not a text table; unpack it and point [input] path "
+                    "at the text files")
+            return data
+    return data
+
+
 def _decode(path: Path, encoding) -> tuple[str, str]:
     """Return the file's text and the encoding used (detected if `encoding` is None)."""
     _require_input_file(path)
@@ -1395,12 +1448,16 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
         data = path.read_bytes()
     except OSError as error:
         raise InputFileError(f"input file {str(path)!r} cannot be read: {error}") from None
+    data = _decompressed(data, path)
     refuse_binary(data, path)
     # a byte-order mark names the encoding, also over [input] encoding: a file saved with
     # one among files of a declared single-byte encoding (read as such, its header would
     # begin with "ï»¿")
     if data.startswith(codecs.BOM_UTF8):
         encoding = "utf-8-sig"
+    elif data.startswith((codecs.BOM_UTF32_LE, codecs.BOM_UTF32_BE)):
+        # before UTF-16: the UTF-32 LE mark FF FE 00 00 begins with UTF-16 LE's FF FE
+        encoding = "utf-32"
     elif data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
         encoding = "utf-16"
     elif encoding is None:
@@ -2045,9 +2102,11 @@ def _header_rows_warning(parts: list) -> str | None:
         for part in parts:
             other = part["header_rows"].get(name)
             if other is not None:
-                seen.setdefault(other[1], part["source"])
+                # one unit in two spellings or two encodings ("°C", "Â°C") is no change
+                key = tuple(same_unit_key(name.split(":")[0], cell) for cell in other[1])
+                seen.setdefault(key, (other[1], part["source"]))
         if len(seen) > 1:
-            (first, first_source), (second, second_source) = list(seen.items())[:2]
+            (first, first_source), (second, second_source) = list(seen.values())[:2]
             differing.append(f"{column!r} ({name.split(':')[0]}) has "
                              f"{' | '.join(first)!r} in {first_source!r} but "
                              f"{' | '.join(second)!r} in {second_source!r}")
@@ -2356,15 +2415,30 @@ def _combine(parts: list) -> dict:
         if repeated.any():
             first = np.flatnonzero(repeated)[:2]
             a, b = int(first[0]), int(first[1])
+            # a value in one row and none in the other completes, not contradicts: the
+            # columns named are those both rows give with different values
             differing = [name for name in names
-                         if not (values[name][a] == values[name][b]
-                                 or (np.isnan(values[name][a]) and np.isnan(values[name][b])))]
+                         if not (np.isnan(values[name][a]) or np.isnan(values[name][b])
+                                 or values[name][a] == values[name][b])]
+            one_sided = [name for name in names
+                         if np.isnan(values[name][a]) != np.isnan(values[name][b])]
+            if not differing:      # a third row of the stamp holds the contradiction
+                differing, one_sided = one_sided, []
+            differing = list(dict.fromkeys(name.split(":")[0] for name in differing))
+            one_sided = list(dict.fromkeys(name.split(":")[0] for name in one_sided))
+            fix = "remove one copy of the overlap from a file"
+            if one_sided and differing and sources[a] != sources[b]:
+                # files of two loggers joined by stamp that share a column (an air
+                # temperature both log): one value per record cannot come from both
+                fix = (f"the files complete each other in {', '.join(one_sided)}, so they "
+                       "look like two loggers' files joined by stamp: keep the column(s) of "
+                       f"{', '.join(differing)} in one of them only (in a copy), or rename "
+                       "them in the other")
             raise DuplicateTimestampError(
                 f"overlapping files disagree: stamp {pd.Timestamp(stamps[a])} is on line "
                 f"{int(lines[a])} of {sources[a]!r} and on line {int(lines[b])} of "
                 f"{sources[b]!r} with different values ({', '.join(differing)}); "
-                f"{int(pd.Index(stamps).duplicated().sum())} such stamp(s) in all: remove one "
-                "copy of the overlap from a file")
+                f"{int(pd.Index(stamps).duplicated().sum())} such stamp(s) in all: {fix}")
     conversions: dict = {}
     for part in parts:
         for key, count in part["conversions"].items():

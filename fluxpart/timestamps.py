@@ -67,10 +67,16 @@ _HOUR_24 = (
 #: (UTC+2). Written beside a stamp the abbreviation is the standard time itself (CET =
 #: UTC+1 all year; CEST names the summer time), so each is read as its fixed offset, a
 #: zone "Etc/GMT-h" (POSIX sign: Etc/GMT-1 is UTC+1). Offsets: the abbreviations'
-#: definitions in the IANA time-zone database's "europe" file (m).
+#: definitions in the IANA time-zone database's "europe" file (m). Their summer-time
+#: labels (CEST, MEST, EEST, WEST: one hour ahead, same file (m)) name one offset each
+#: too, so a civil-time logger that labels every stamp is read without a time_zone,
+#: its repeated autumn hour told apart by the labels. Summer labels that name other
+#: zones as well (BST: British Summer Time or Bangladesh Standard Time) are not read.
 _STANDARD_TIME_LABELS = {"CET": "Etc/GMT-1", "MET": "Etc/GMT-1", "EET": "Etc/GMT-2",
-                         "WET": "Etc/GMT"}
-_STANDARD_TIME_LABEL = re.compile(r"(?<![A-Za-z/])(CET|MET|EET|WET)(?![A-Za-z/])")
+                         "WET": "Etc/GMT", "CEST": "Etc/GMT-2", "MEST": "Etc/GMT-2",
+                         "EEST": "Etc/GMT-3", "WEST": "Etc/GMT-1"}
+_STANDARD_TIME_LABEL = re.compile(
+    r"(?<![A-Za-z/])(CEST|MEST|EEST|WEST|CET|MET|EET|WET)(?![A-Za-z/])")
 
 #: IANA zone names (or their first part) that denote a fixed offset rather than a place.
 _OFFSET_ZONE_PREFIXES = frozenset({"UTC", "Etc", "GMT", "UCT", "Zulu", "Universal"})
@@ -252,6 +258,19 @@ def _fixed_width_stamps(text: pd.Series, time_format: str) -> pd.Series | None:
 
 
 _CLOCK_FIELD = re.compile(r"%H%M(%S)?")
+
+
+def _hour_only_offsets(text: pd.Series) -> pd.Series:
+    """Stamps ending in a UTC offset of hours alone (``+01``, ``-05``) with its minutes
+    (``+0100``), for a format ending in ``%z``.
+
+    ISO 8601 allows an offset of hours alone (``±hh``, ISO 8601:2004, 4.2.5.1 (m)) and
+    database exports write it (``2021-06-01 13:30:00+02``); pandas' ``%z`` reads it
+    after seconds but not after minutes or a space, so such a file was refused or read
+    by its format's accident. A stamp under a format ending in ``%z`` ends in its offset,
+    so the two digits after the sign are hours.
+    """
+    return text.str.replace(r"([+-]\d{2})$", r"\g<1>00", regex=True)
 
 
 def _pad_clock_fields(text: pd.Series, time_format: str) -> pd.Series:
@@ -440,6 +459,35 @@ def _finer_stamp(stamp: str, time_format: str) -> str:
     return ""
 
 
+def _mixed_forms(hint: str, text: pd.Series, failed: np.ndarray, skipped: np.ndarray,
+                 time_format: str, source: str, lines: np.ndarray) -> str:
+    """`hint`, or where it proposes another time_format that the stamps read so far do
+    not match, a hint naming the file's two forms of stamp.
+
+    A logger program or export changed the stamps' form within a file (seconds added,
+    a two-digit year, AM/PM): the format proposed for the failing stamps would fail
+    the others, and one time_format reads every stamp of every file. `skipped`: the
+    failing stamps and those read in another way (hour 24, a date alone).
+    """
+    proposed = re.search(r'time_format = "((?:[^"\\]|\\.)*)"', hint)
+    if proposed is None or skipped.all() or time_format.upper() == "ISO8601":
+        return hint
+    candidate = proposed.group(1).replace('\\"', '"').replace("\\\\", "\\")
+    passed = np.flatnonzero(~skipped)
+    sample = passed[np.linspace(0, len(passed) - 1, min(len(passed), 25)).astype(int)]
+    for row in sample:
+        try:
+            datetime.strptime(text.iloc[row].strip(), candidate)
+        except ValueError:
+            first = int(np.flatnonzero(failed)[0])
+            return (f"; the file writes its stamps in two forms ({text.iloc[row]!r} on "
+                    f"line {int(lines[row])}, {text.iloc[first]!r} from line "
+                    f"{int(lines[first])}), and time_format = "
+                    f"{setting_text(candidate)} would read only the second: one time_format "
+                    "reads every stamp, so write them in one form in a copy of the file")
+    return hint
+
+
 def _other_format(stamp: str, time_format: str) -> str:
     """A hint where a stamp fails only for a 12-hour clock, a two-digit year or seconds
     written in one of stamp and format but not the other, else ''."""
@@ -493,14 +541,48 @@ def _swapped_day_month(failed: pd.Series, time_format: str,
     if "%d" not in time_format or "%m" not in time_format:
         return ""
     swapped = (time_format.replace("%d", "\0").replace("%m", "%d").replace("\0", "%m"))
+    # utc=True: zone labels under %Z ("CET" read as the zone with summer time on the
+    # exchanged dates) give stamps of several offsets, which pandas refuses to mix
     if passed is not None and len(passed) and pd.to_datetime(
-            passed, format=swapped, errors="coerce").isna().any():
+            passed, format=swapped, errors="coerce", utc=True).isna().any():
         return ""
-    if pd.to_datetime(failed, format=swapped, errors="coerce").notna().all():
+    if pd.to_datetime(failed, format=swapped, errors="coerce", utc=True).notna().all():
         return ("the day and the month are exchanged (the stamps that parse up to there "
                 "were read as wrong dates): write time_format = "
                 f"{setting_text(swapped)}")
     return ""
+
+
+def _exchanged_spread(text: pd.Series, parsed: pd.Series, plain: np.ndarray,
+                      time_format: str, utc: bool) -> str:
+    """A message where every stamp parses both as written and with %d and %m exchanged,
+    and the stamps as written spread over four times the time they cover exchanged.
+
+    A record of the first 11 days of a month written month-first (06/01 ... 06/11)
+    parses under a day-first format as the 6th of eleven months: no stamp fails, so
+    :func:`_swapped_day_month` never speaks, and the record becomes eleven days spread
+    over eleven months with 97 % of its stamps inserted as missing. Read the other way
+    the same stamps are a short record; a record is written in one calendar order, and a
+    true day-first record of days 1 to 12 read exchanged spreads instead, so it passes.
+    Else ''.
+    """
+    if "%d" not in time_format or "%m" not in time_format or plain.sum() < 2:
+        return ""
+    kept = pd.DatetimeIndex(parsed[plain])
+    if kept.day.max() > 12:
+        return ""
+    swapped = time_format.replace("%d", "\0").replace("%m", "%d").replace("\0", "%m")
+    other = pd.to_datetime(text[plain], format=swapped, errors="coerce", utc=utc)
+    if other.isna().any():
+        return ""
+    spread = kept.max() - kept.min()
+    other_spread = other.max() - other.min()
+    if spread <= pd.Timedelta(days=20) or other_spread * 4 > spread:
+        return ""
+    return (f"parse both day-first and month-first: read as time_format = "
+            f"{setting_text(time_format)} they spread over {spread.days} days, read with "
+            f"the day and the month exchanged they are {other_spread / pd.Timedelta(days=1):.1f} "
+            f"days of records: write time_format = {setting_text(swapped)}")
 
 
 def _fraction_hint(failed: pd.Series, time_format: str) -> str:
@@ -619,6 +701,12 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                 f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
                 f"{text.iloc[first]!r} without a UTC offset while other stamps carry one; "
                 f"{int(naive.sum())} such stamp(s): give every stamp its offset")
+    if time_format.endswith("%z"):
+        text = _hour_only_offsets(text)
+    if "%p" in time_format:
+        # "a.m." and "p.m." (style guides' spelling, some locales' exports) are AM and PM;
+        # %p reads the letters alone, in either case
+        text = text.str.replace(r"(?i)(?<![A-Za-z])([ap])\.\s?m\.", r"\1m", regex=True)
     text = _pad_clock_fields(text, time_format)
     readable = _standard_time_labels(text, time_format)
     parsed = _to_datetime(readable, time_format, utc=with_offset)
@@ -676,12 +764,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
         elif "%Z" in time_format and re.search(r"\s[A-Za-z]{2,6}$", text.iloc[first]):
-            # %Z reads UTC, GMT, the standard times CET, MET, EET, WET and zone names of
-            # the time-zone database (EST), not summer-time abbreviations (CEST, BST,
+            # %Z reads UTC, GMT, the European labels (CET, CEST, ...) and zone names of
+            # the time-zone database (EST), not other summer-time abbreviations (BST,
             # PDT), several of which are ambiguous
             hint = (f"; the zone abbreviation {text.iloc[first].split()[-1]!r} is not read "
-                    "(only UTC, GMT, the standard times CET, MET, EET, WET and time-zone "
-                    "database names such as EST): write the "
+                    "(only UTC, GMT, the European labels CET, MET, EET, WET and their summer "
+                    "times CEST, MEST, EEST, WEST, and time-zone database names such as "
+                    "EST): write the "
                     "stamps with a numeric offset (+02:00, %z), or without the abbreviation "
                     "and with [input] time_zone = \"Area/City\"")
         elif _numeric_clock(text):
@@ -695,10 +784,17 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
+        hint = _mixed_forms(hint, text, failed, failed | is_24 | date_only, time_format,
+                            source, lines)
         raise TimestampError(
             f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
             f"{text.iloc[first]!r}, which does not match time_format = {setting_text(time_format)}; "
             f"{int(failed.sum())} stamp(s) fail to parse{hint}")
+    exchanged = _exchanged_spread(readable, parsed, ~(is_24 | date_only), time_format,
+                                  with_offset)
+    if exchanged:
+        raise TimestampError(f"{_time_setting(time_columns)}: the stamps of {source!r} "
+                             f"{exchanged}")
     index = pd.DatetimeIndex(parsed)
     index, rounded = _round_to_minute(index)
     offset_converted = 0

@@ -184,6 +184,8 @@ def _folded(unit: str) -> str:
 #: A degree word for a temperature scale: "deg C", "Deg C", "degrees C", "Celsius".
 _DEGREE_WORD = re.compile(r"^(?:[Dd]eg(?:rees?)?\.?\s*([CF])|(Celsius|Fahrenheit))$",
                           re.IGNORECASE)
+#: A period between a unit symbol (or its exponent) and the next symbol: "W.m-2".
+_PERIOD_PRODUCT = re.compile(r"(?<=[A-Za-z0-9\u00b5\u03bc])\.(?=[A-Za-z\u00b5\u03bc])")
 #: A divisor written with a solidus: "/m2", "/s", "/ m^2".
 _SOLIDUS = re.compile(r"\s*/\s*([A-Za-z]+)(\d?)")
 
@@ -191,8 +193,8 @@ _SOLIDUS = re.compile(r"\s*/\s*([A-Za-z]+)(\d?)")
 def _notation(unit: str) -> str:
     """`unit` in one notation: exponents with a caret (``m^-2``) written ``m-2``, divisors
     with a solidus (``/m2/s``) as negative exponents (``m-2 s-1``), the species of a
-    molar flux dropped (``µmol CO2 m-2 s-1``: moles of CO2 are the unit's own), and a
-    degree word (``deg C``, ``Deg C``, ``Celsius``) as the degree sign. These are the
+    molar flux dropped (``µmol CO2 m-2 s-1``: moles of CO2 are the unit's own), a
+    full stop for the product's dot (``W.m-2``), and a degree word (``deg C``, ``Deg C``, ``Celsius``) as the degree sign. These are the
     notations of logger units lines and of the SI brochure (BIPM 2019, section 5.4.6:
     ``m/s``, ``m s-1`` and ``m·s⁻¹`` write one unit (m))."""
     text = unit.strip()
@@ -201,6 +203,9 @@ def _notation(unit: str) -> str:
         letter = (degree.group(1) or degree.group(2)[0]).upper()
         return "\u00b0" + letter
     text = text.replace("^", "").replace("\u00b7", " ").replace("\u22c5", " ")
+    # a full stop for the product's dot ("W.m-2", "µmol.m-2.s-1"), as typewriters and
+    # many logger units lines write the half-high dot: a period between two symbols
+    text = _PERIOD_PRODUCT.sub(" ", text)
     text = re.sub(r"(mol)\s+CO2\b", r"\1", text)
     text = _SOLIDUS.sub(lambda match: f" {match.group(1)}-{match.group(2) or '1'}", text)
     return " ".join(text.split())
@@ -231,6 +236,38 @@ def unit_spelling(name: str, unit: str) -> str:
         same = [spelling for spelling in table
                 if _notation(_folded(spelling)) == _notation(_folded(unit))]
     return same[0] if same else unit
+
+
+def same_unit_key(name: str, cell: str):
+    """A key that two cells of a units line share where they write one unit of `name`.
+
+    Cells are compared as :func:`unit_spelling` reads them, after undoing UTF-8 text
+    decoded as a single-byte encoding ("Â°C" for "°C": each non-ASCII character read as
+    two bytes, as when a logger program's update changed the file encoding): spellings
+    of one unit with the same conversion ("umol/m2/s" and "µmol m-2 s-1", "C" and "°C")
+    get one key. Anything else (a statistic such as "Avg", an unknown unit) is its own
+    text.
+
+    Examples
+    --------
+    >>> same_unit_key("tair", "\u00c2\u00b0C") == same_unit_key("tair", "degC")
+    True
+    >>> same_unit_key("vpd", "kPa") == same_unit_key("vpd", "hPa")
+    False
+    """
+    text = cell.strip() if isinstance(cell, str) else cell
+    if isinstance(text, str):
+        for single_byte in ("cp1252", "latin-1"):
+            try:
+                text = text.encode(single_byte).decode("utf-8")
+                break
+            except (UnicodeEncodeError, UnicodeDecodeError):
+                continue
+    spelled = unit_spelling(name, text)
+    conversion = _CONVERSIONS.get(name, {}).get(spelled)
+    if conversion is None:
+        return ("text", text)
+    return ("unit", conversion, (name, spelled) in PER_INTERVAL_UNITS)
 
 
 def to_canonical(values, name: str, unit: str | None = None, *,

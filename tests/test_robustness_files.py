@@ -67,9 +67,11 @@ def test_site_config_not_utf8_names_file_and_line(example, tmp_path, capsys):
     assert "latin.toml" in line and "UTF-8" in line and "line 1" in line
 
 
-@pytest.mark.parametrize("kind", ["gzip", "zip", "bzip2"])
+@pytest.mark.parametrize("kind", ["zip"])
 def test_compressed_input_is_named_not_blamed_on_encoding(example, tmp_path, capsys, kind):
-    """A compressed input is named as such; changing [input] encoding could not help."""
+    """A zip archive is named as such; changing [input] encoding could not help. (gzip-
+    and bzip2-compressed files are read since round layouts18: see
+    ``test_robustness_layouts18.py``.)"""
     data = example.with_suffix(".csv").read_bytes()
     packed = tmp_path / f"tower.{kind}"
     if kind == "gzip":

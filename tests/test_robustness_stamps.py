@@ -289,18 +289,24 @@ def test_midnight_written_as_the_date_alone_is_read_as_midnight():
 
 
 def test_summer_time_abbreviation_under_percent_capital_z_is_named():
-    """%Z reads UTC, GMT and names of the time-zone database such as CET (IANA tz database,
-    zone "CET"), not summer-time abbreviations such as CEST, which the database does not
-    define as zones. The refusal names the abbreviation and the two ways out (review,
-    round five); the winter stamps before it are read as UTC+1."""
-    text = ["2021-03-28 01:30 CET", "2021-03-28 03:00 CEST"]
-    with pytest.raises(TimestampError, match=r"line 3 .*the zone abbreviation 'CEST' is not "
+    """%Z reads UTC, GMT, names of the time-zone database and the European labels (CET,
+    CEST, ...: one offset each, IANA "europe" file (m); CEST read since round layouts18),
+    not a summer-time abbreviation that also names another zone (BST: British Summer Time,
+    Bangladesh Standard Time). The refusal names the abbreviation and the two ways out
+    (review, round five); the winter stamps before it are read as UTC+0."""
+    text = ["2021-03-28 00:30 GMT", "2021-03-28 02:00 BST"]
+    with pytest.raises(TimestampError, match=r"line 3 .*the zone abbreviation 'BST' is not "
                        r"read .*numeric offset .*\[input\] time_zone"):
         parse_stamps(pd.Series(text), "%Y-%m-%d %H:%M %Z", time_columns=("stamp",),
-                     source="t.csv", lines=np.arange(2, 4), utc_offset=1.0)
+                     source="t.csv", lines=np.arange(2, 4), utc_offset=0.0)
     winter = parse_stamps(pd.Series(text[:1]), "%Y-%m-%d %H:%M %Z", time_columns=("stamp",),
-                          source="t.csv", lines=np.arange(2, 3), utc_offset=1.0)
-    assert list(winter.stamps) == [datetime(2021, 3, 28, 1, 30)]
+                          source="t.csv", lines=np.arange(2, 3), utc_offset=0.0)
+    assert list(winter.stamps) == [datetime(2021, 3, 28, 0, 30)]
+    # CET then CEST: 03:00 CEST is 02:00 CET (UTC+2 and UTC+1)
+    both = parse_stamps(pd.Series(["2021-03-28 01:30 CET", "2021-03-28 03:00 CEST"]),
+                        "%Y-%m-%d %H:%M %Z", time_columns=("stamp",), source="t.csv",
+                        lines=np.arange(2, 4), utc_offset=1.0)
+    assert list(both.stamps) == [datetime(2021, 3, 28, 1, 30), datetime(2021, 3, 28, 2, 0)]
 
 
 def test_standard_time_labels_under_percent_capital_z_are_fixed_offsets():
