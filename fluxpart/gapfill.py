@@ -674,6 +674,13 @@ def local_linear_correction(residual, donor_drivers, gap_drivers, tolerances, ru
     Efron, B., Morris, C. (1975). Data analysis using Stein's estimator and its
     generalizations. Journal of the American Statistical Association 70, 311–319 (m).
     """
+    with np.errstate(all="ignore"):
+        return _local_linear(residual, donor_drivers, gap_drivers, tolerances, run_starts,
+                             counts, reference_means)
+
+
+def _local_linear(residual, donor_drivers, gap_drivers, tolerances, run_starts, counts,
+                  reference_means):
     n_gaps, k = counts.size, len(donor_drivers)
     scaled, offset = [], np.empty((n_gaps, k))
     for j, (x, at_gap, tolerance) in enumerate(zip(donor_drivers, gap_drivers, tolerances,
@@ -690,6 +697,10 @@ def local_linear_correction(residual, donor_drivers, gap_drivers, tolerances, ru
         for j in range(i, k):
             gram[:, i, j] = gram[:, j, i] = np.add.reduceat(scaled[i] * scaled[j], run_starts)
     gram += _SLOPE_RIDGE * counts[:, None, None] * np.eye(k)
+    # rows with a non-finite sum (an absurd driver value) get no slope, not a failed solve
+    broken = ~(np.isfinite(gram).all(axis=(1, 2)) & np.isfinite(moment).all(axis=1)
+               & np.isfinite(offset).all(axis=1))
+    gram[broken], moment[broken], offset[broken] = np.eye(k), 0.0, 0.0
     # one solve for the slopes (moment) and the leverage of the offset
     solved = np.linalg.solve(gram, np.stack([moment, offset], axis=2))
     correction = np.einsum("ij,ij->i", solved[:, :, 0], offset)
@@ -697,7 +708,10 @@ def local_linear_correction(residual, donor_drivers, gap_drivers, tolerances, ru
     variance = np.add.reduceat(residual * residual, run_starts) / counts * leverage
     square = correction * correction
     total = square + variance
-    return np.divide(correction * square, total, out=np.zeros(n_gaps), where=total > 0)
+    kept = np.divide(correction * square, total, out=np.zeros(n_gaps),
+                     where=(total > 0) & np.isfinite(total))
+    # a driver of absurd size (the reader's checks aside) must not turn a fill into NaN
+    return np.where(np.isfinite(kept), kept, 0.0)
 
 
 def _at(tolerance, gaps):

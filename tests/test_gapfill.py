@@ -921,6 +921,10 @@ def test_local_linear_correction_of_an_exact_line():
     flat = local_linear_correction(y - y.mean(), [np.zeros(10)], [np.array([0.8])], [1.0],
                                    np.array([0]), np.array([10]))
     assert flat[0] == pytest.approx(0.0, abs=1e-12)
+    # a driver of absurd size gives no slope rather than a NaN fill or a failed solve
+    absurd = local_linear_correction(y - y.mean(), [np.r_[np.inf, x[1:]]], [np.array([0.8])],
+                                     [1.0], np.array([0]), np.array([10]))
+    assert absurd[0] == 0.0
 
 
 def test_unknown_gapfill_estimate_is_refused_naming_the_setting():
