@@ -111,7 +111,7 @@ within 8 %, u* within 20 %), the NEE error split by record class (kept, filled n
 day, outage), the partition errors of night and day records.
 
 Results (fluxpart 0.20.0+ at commit 73fd04d, branch trial10; 6 sites, 12 complete budget
-years; 27 s on the shared 2-core machine)::
+years; 27-37 s on the shared 2-core machine)::
 
     site-year  NEE err  in  GPPn %  in  Recn %  in  GPPd %  in  Recd %  in   u* %
     T:2021      +0.5   y    -3.9   y    -4.8   y    -0.4   y    +3.3   y    -11
