@@ -608,6 +608,17 @@ def _setting_value(value) -> str:
     return str(value)
 
 
+def _fill_estimate(config: dict) -> str:
+    """How an NEE fill of the similarity steps was made, as the result's config says (a
+    result written before 0.21.0 has no ``gapfill_estimate``: its fills were means)."""
+    if config.get("gapfill_estimate", "donor_mean") == "local_linear":
+        return ("Each NEE fill of the similarity steps is the similar records' mean moved by "
+                "the flux's local slope on Rg, Tair and VPD times their offset from the gap "
+                "(a local-linear estimate, our refinement: a gap at the edge of its donors' "
+                "conditions is not filled at their level).")
+    return "Each fill is the mean of the similar records."
+
+
 def _methods(config: dict, has_random: bool) -> tuple[str, list[str]]:
     cited = ["papale2006", "reichstein2005", "lloyd1994", "lasslop2010", "kopp2011"]
     method = config.get("ustar_method", "moving_point")
@@ -634,7 +645,7 @@ def _methods(config: dict, has_random: bool) -> tuple[str, list[str]]:
         f"u* threshold: {ustar}. Night records below the threshold are removed.",
         "Gap filling of NEE and the drivers by marginal distribution sampling (Reichstein et "
         "al. 2005, appendix): similar Rg, Tair and VPD within widening time windows, then the "
-        "mean diurnal course; fill quality classes A, B, C.",
+        f"mean diurnal course; fill quality classes A, B, C. {_fill_estimate(config)}",
         "Nighttime partitioning: Lloyd–Taylor respiration (Lloyd & Taylor 1994); E0 per year "
         f"from the night data with a free Rref in each {_setting_value(config.get('e0_window_days'))}"
         f"-day window (e0_method = {_setting_value(config.get('e0_method'))}), Rref in "

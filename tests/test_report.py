@@ -1096,3 +1096,30 @@ def test_methods_name_the_despiking_rule_the_run_applies():
     screening_item = next(item for item in listed.split("<li>") if item.startswith("Screening:"))
     assert "Papale et al. 2006" in screening_item
     assert "stands out from the records on both sides" in screening_item
+
+
+def test_methods_name_the_fill_estimate_the_result_was_made_with():
+    """The report draws only what was written: a result's config with the local-linear fill
+    (0.21.0) says so, one written before (no ``gapfill_estimate``) names the donors' mean of
+    Reichstein et al. (2005, appendix A), and the estimate changes the fill of a gap at the
+    edge of its donors' conditions (known truth: an exact line in Tair)."""
+    from fluxpart.gapfill import fill_marginal
+
+    def gap_filling_item(config):
+        listed, _ = report._methods(config, False)
+        return next(item for item in listed.split("<li>") if item.startswith("Gap filling"))
+
+    assert "local-linear" in gap_filling_item({"gapfill_estimate": "local_linear"})
+    assert "local-linear" not in gap_filling_item({})
+    assert "mean of the similar records" in gap_filling_item({"gapfill_estimate": "donor_mean"})
+    n = 40
+    index = pd.date_range("2023-06-01", periods=n, freq="30min")
+    tair = np.linspace(20.0, 22.0, n)
+    values = -8.0 + 2.0 * (tair - 20.0)
+    values[-1] = np.nan                                   # the hottest record is missing
+    drivers = pd.DataFrame({"rg": 400.0, "tair": tair, "vpd": 10.0}, index=index)
+    fills = {estimate: fill_marginal(values, drivers, index, is_night=np.zeros(n, bool),
+                                     estimate=estimate)["value"].iloc[-1]
+             for estimate in ("donor_mean", "local_linear")}
+    truth = -8.0 + 2.0 * 2.0
+    assert abs(fills["local_linear"] - truth) < 0.2 * abs(fills["donor_mean"] - truth)
