@@ -635,7 +635,10 @@ def _schema_record(path: Path) -> dict:
     :func:`field_differences` names e.g. ``fluxpart.site.utc_offset``)."""
     import pyarrow.parquet as pq
 
-    schema = pq.read_schema(path)
+    from .store import parquet_source
+
+    with parquet_source(path) as source:
+        schema = pq.read_schema(source)
     out = {}
     for item in schema:
         out[f"{item.name} type"] = str(item.type)
@@ -1116,12 +1119,14 @@ def _rewritten_elsewhere(path: Path, index=None):
     import pyarrow as pa
     import pyarrow.parquet as pq
 
-    from .store import _SCHEMA_KEY
+    from .store import _SCHEMA_KEY, parquet_source
 
     try:
-        if _SCHEMA_KEY in (pq.read_schema(path).metadata or {}):
-            return None                 # fluxpart's own, damaged otherwise: named as such
-        frame = pd.read_parquet(path)
+        with parquet_source(path) as source:
+            if _SCHEMA_KEY in (pq.read_schema(source).metadata or {}):
+                return None             # fluxpart's own, damaged otherwise: named as such
+        with parquet_source(path) as source:
+            frame = pd.read_parquet(source)
     except (OSError, ValueError, ImportError, pa.ArrowException):
         return None
     if isinstance(index, str) and index in frame.columns and isinstance(frame.index,
