@@ -40,7 +40,7 @@ from pathlib import Path
 from .errors import InputFileError
 
 __all__ = ["CAUTION", "MANIFEST_FILE", "MANIFEST_FORMAT", "REPORT_FOLDER", "RUN_LOG",
-           "build_manifest", "library_versions", "manifest_seal", "name_in_other_case",
+           "build_manifest", "escaped_paths", "library_versions", "manifest_seal", "name_in_other_case",
            "portable_provenance", "read_manifest", "recorded_path", "recorded_paths",
            "seal_intact", "shown_name", "undecodable_message", "undecodable_paths",
            "without_paths"]
@@ -183,6 +183,17 @@ def undecodable_paths(provenance: dict, directory) -> list[str]:
         if isinstance(path, str) and path != shown_name(path):
             found.append(shown_name(path))
     return found
+
+
+def escaped_paths(provenance: dict) -> dict:
+    """A copy of `provenance` whose recorded paths show bytes that are not UTF-8 as
+    ``\\xNN`` (:func:`shown_name`): for a scratch copy of a result whose paths are never
+    compared (verify's rerun from an input given in such a folder)."""
+    out = _jsonable(provenance)
+    for entry in _path_entries(out):
+        if isinstance(entry.get("path"), str):
+            entry["path"] = shown_name(entry["path"])
+    return out
 
 
 def undecodable_message(shown: str) -> str:

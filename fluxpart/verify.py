@@ -61,6 +61,7 @@ verification.
 
 from __future__ import annotations
 
+import dataclasses
 import hashlib
 import json
 import os
@@ -76,7 +77,14 @@ import pandas as pd
 from .config import Config
 from .errors import FluxpartError, InputFileError, OutputError
 from .fingerprint import code_fingerprint, platform_differences, platform_record
-from .manifest import CAUTION, library_versions, read_manifest, recorded_path, without_paths
+from .manifest import (
+    CAUTION,
+    escaped_paths,
+    library_versions,
+    read_manifest,
+    recorded_path,
+    without_paths,
+)
 from .resultdir import interrupted_writes
 from .store import file_sha256, read_table
 
@@ -1337,7 +1345,12 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                                 environment=tuple(environment), code_changed=code_changed,
                                 exact=exact, notes=tuple(notes))
         try:
-            again = result.write(scratch / "recomputed")
+            # the rerun's recorded paths are never compared (`without_paths`): an input or
+            # site config given in a folder named in another code page is written escaped
+            # (the scratch manifest could not hold it: "could not be written", exit 2)
+            again = dataclasses.replace(
+                result, provenance=escaped_paths(result.provenance)).write(
+                scratch / "recomputed")
         except OutputError as error:
             # a full temporary folder or the file-size limit (ulimit -f): the message named
             # the scratch folder as a "result folder" whose "earlier result" was unchanged

@@ -251,3 +251,18 @@ def test_a_netcdf_name_without_room_for_its_temporary_file_names_the_fix(written
     with pytest.raises(OutputError, match=f"at most {limit - 14} bytes"):
         export.write_netcdf(written_demo[0], target)
     assert list(tmp_path.iterdir()) == []
+
+
+def test_verify_reruns_from_an_input_given_in_a_folder_named_in_another_code_page(
+        tmp_path, capsys):
+    """An auditor's copy of the input in such a folder, given with --input: the rerun's
+    scratch manifest could not hold its path (a traceback; with the refusal above, "could
+    not be written"). The rerun's paths are never compared: it verifies."""
+    config = make_bundle(tmp_path / "site")
+    assert main(["run", str(config), "--out", str(tmp_path / "out"), "--quiet"]) == 0
+    copy = _latin1_folder(tmp_path, "audit") / "tower.csv"
+    shutil.copy(tmp_path / "site" / "tower.csv", copy)
+    (tmp_path / "site" / "tower.csv").unlink()
+    capsys.readouterr()
+    assert main(["verify", str(tmp_path / "out"), "--input", str(copy), "--quiet"]) == 0
+    assert capsys.readouterr().out.startswith("bit-identical")
