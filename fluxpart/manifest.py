@@ -32,6 +32,7 @@ from __future__ import annotations
 
 import hashlib
 import json
+import math
 import os
 import platform
 import unicodedata
@@ -95,20 +96,46 @@ def _jsonable(value):
     return json.loads(json.dumps(value, default=str))
 
 
-def manifest_seal(manifest: dict) -> str:
-    """Return the SHA-256 of the manifest's content without its ``seal`` entry.
+def _whole_numbers_as_integers(value):
+    """`value` with every finite float that is a whole number as an int, at any depth."""
+    if isinstance(value, float) and math.isfinite(value) and value.is_integer():
+        return int(value)
+    if isinstance(value, dict):
+        return {key: _whole_numbers_as_integers(item) for key, item in value.items()}
+    if isinstance(value, list):
+        return [_whole_numbers_as_integers(item) for item in value]
+    return value
 
-    The content is serialised canonically (sorted keys, no whitespace), so
-    re-indenting the file does not change the seal but changing any value does.
-    """
+
+def _content_sha256(manifest: dict, *, whole_numbers: bool) -> str:
     content = {key: value for key, value in manifest.items() if key != "seal"}
+    if whole_numbers:
+        content = _whole_numbers_as_integers(content)
     text = json.dumps(content, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
     return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
+def manifest_seal(manifest: dict) -> str:
+    """Return the SHA-256 of the manifest's content without its ``seal`` entry.
+
+    The content is serialised canonically (sorted keys, no whitespace, and, since
+    faults19, every whole number written as an integer: ``250.0`` as ``250``), so
+    re-indenting the file, also with a tool that writes numbers its own way (``jq``,
+    JavaScript's ``JSON.stringify`` drop the ``.0``), does not change the seal, but
+    changing any value does.
+    """
+    return _content_sha256(manifest, whole_numbers=True)
+
+
 def seal_intact(manifest: dict) -> bool:
-    """True when the manifest's ``seal`` matches its content."""
-    return manifest.get("seal") == manifest_seal(manifest)
+    """True when the manifest's ``seal`` matches its content.
+
+    A seal of fluxpart 0.20.0 or earlier, computed with whole floats as written
+    (``250.0``), is accepted as well (such a manifest re-indented by ``jq`` still fails).
+    """
+    seal = manifest.get("seal")
+    return seal == manifest_seal(manifest) or seal == _content_sha256(manifest,
+                                                                      whole_numbers=False)
 
 
 def _relative(path_text, directory: Path):

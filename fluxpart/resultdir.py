@@ -869,7 +869,7 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
                       "such as git-annex or DVC not fetched?)"
                       if path.is_symlink() and not path.exists() else
                       "is listed in the manifest but missing from the folder")
-            if path.exists() or path.is_symlink():
+            if path.exists():
                 detail = ("is listed in the manifest but is not a plain file (a folder, a "
                           "pipe or a device)")
             other_case = name_in_other_case(directory, file)

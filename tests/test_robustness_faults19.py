@@ -266,3 +266,52 @@ def test_verify_reruns_from_an_input_given_in_a_folder_named_in_another_code_pag
     capsys.readouterr()
     assert main(["verify", str(tmp_path / "out"), "--input", str(copy), "--quiet"]) == 0
     assert capsys.readouterr().out.startswith("bit-identical")
+
+
+def _whole_floats_as_integers(value):
+    """What jq 1.6 and JavaScript's JSON.stringify write for a whole float: 250.0 -> 250
+    (ECMA-262 Number::toString (m); jq 1.6 prints numbers with %.17g (m))."""
+    if isinstance(value, float) and value.is_integer():
+        return int(value)
+    if isinstance(value, dict):
+        return {k: _whole_floats_as_integers(v) for k, v in value.items()}
+    if isinstance(value, list):
+        return [_whole_floats_as_integers(v) for v in value]
+    return value
+
+
+def test_a_manifest_reindented_by_jq_or_javascript_keeps_its_seal(written_demo, tmp_path):
+    """`jq . manifest.json` or JSON.stringify drop the '.0' of whole floats (daytime_beta0_max
+    250.0 -> 250): a genuine result was "edited after it was written", NOT reproduced."""
+    folder = tmp_path / "result"
+    shutil.copytree(written_demo[1], folder)
+    manifest = json.loads((folder / "manifest.json").read_text(encoding="utf-8"))
+    assert any(isinstance(v, float) and v.is_integer() for v in manifest["config"].values())
+    reformatted = _whole_floats_as_integers(manifest)
+    (folder / "manifest.json").write_text(json.dumps(reformatted, indent=2), encoding="utf-8")
+    assert [p for p in check_folder(folder, read_manifest(folder)) if p.kind == "seal"] == []
+    if shutil.which("jq"):                               # the tool itself, where installed
+        import subprocess
+
+        text = subprocess.run(["jq", ".", str(written_demo[1] / "manifest.json")],
+                              capture_output=True, check=True, text=True).stdout
+        (folder / "manifest.json").write_text(text, encoding="utf-8")
+        assert [p for p in check_folder(folder, read_manifest(folder))
+                if p.kind == "seal"] == []
+    reformatted["config"]["seed"] = reformatted["config"]["seed"] + 1      # still an edit
+    (folder / "manifest.json").write_text(json.dumps(reformatted, indent=2), encoding="utf-8")
+    assert [p.kind for p in check_folder(folder, read_manifest(folder))] == ["seal"]
+
+
+def test_a_seal_of_an_earlier_release_still_holds(written_demo, tmp_path):
+    """Seals written before faults19 hashed whole floats as written ('250.0')."""
+    import hashlib
+
+    from fluxpart.manifest import seal_intact
+
+    manifest = json.loads((written_demo[1] / "manifest.json").read_text(encoding="utf-8"))
+    content = {k: v for k, v in manifest.items() if k != "seal"}
+    legacy = hashlib.sha256(json.dumps(content, sort_keys=True, separators=(",", ":"),
+                                       ensure_ascii=False).encode("utf-8")).hexdigest()
+    assert seal_intact({**manifest, "seal": legacy})
+    assert not seal_intact({**manifest, "seal": legacy, "seed": manifest["seed"] + 1})
