@@ -625,7 +625,10 @@ def _tolerate_encoding(stream) -> str | None:
     (``backslashreplace``).
     """
     errors = getattr(stream, "errors", None)
-    if errors != "strict" or not hasattr(stream, "reconfigure"):
+    # surrogateescape: Python's choice for standard output under the C or POSIX locale
+    # (PYTHONUTF8=0), which writes a file name's undecodable bytes but fails on any other
+    # character the encoding lacks
+    if errors not in ("strict", "surrogateescape") or not hasattr(stream, "reconfigure"):
         return None
     try:
         stream.reconfigure(errors="backslashreplace")

@@ -68,17 +68,20 @@ def test_an_out_name_without_room_for_its_staging_folder_is_refused_before_compu
 
 # --------------------------------------------------------------------------- output encoding
 
-def test_run_on_an_ascii_terminal_prints_its_result_and_exits_0(tmp_path, monkeypatch):
-    """stdout in ASCII (LC_ALL=C with PYTHONUTF8=0, PYTHONIOENCODING=ascii): the first '–'
-    of the output raised UnicodeEncodeError, exit 1 after the result had been written."""
+@pytest.mark.parametrize("errors", ["strict", "surrogateescape"])
+def test_run_on_an_ascii_terminal_prints_its_result_and_exits_0(tmp_path, monkeypatch,
+                                                                errors):
+    """stdout in ASCII (PYTHONIOENCODING=ascii: strict; LC_ALL=C with PYTHONUTF8=0: Python
+    takes surrogateescape there): the first '–' of the output raised UnicodeEncodeError,
+    exit 1 after the result had been written."""
     config = make_bundle(tmp_path / "site")
     raw = io.BytesIO()
-    stream = io.TextIOWrapper(raw, encoding="ascii", errors="strict", write_through=True)
+    stream = io.TextIOWrapper(raw, encoding="ascii", errors=errors, write_through=True)
     monkeypatch.setattr("sys.stdout", stream)
     assert main(["run", str(config), "--out", str(tmp_path / "out")]) == 0
     text = raw.getvalue().decode("ascii")                # ASCII bytes only (codecs)
     assert "Wrote" in text and "\\u" in text             # escaped, not lost
-    assert stream.errors == "strict"                     # the caller's stream as it was
+    assert stream.errors == errors                       # the caller's stream as it was
     assert (tmp_path / "out" / "manifest.json").is_file()
 
 
