@@ -182,6 +182,12 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
             # numbers?): hold the lock as filelock gives it, and never delete the file
             locked.clear()
     except OSError as error:
+        if path.is_dir() and not path.is_symlink():
+            # a folder of that name (made by hand, or by a copy tool): "choose a writable
+            # output folder" sent the user after a permission that was never missing
+            raise OutputError(f"the lock file {str(path)!r} beside the output folder is a "
+                              "folder, which fluxpart never makes; remove it (or rename it) "
+                              "and run again") from None
         raise OutputError(f"cannot create the lock file {str(path)!r} beside the output folder: "
                           f"{error.strerror or error}; choose a writable output folder") from None
     try:

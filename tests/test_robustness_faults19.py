@@ -318,3 +318,15 @@ def test_a_seal_of_an_earlier_release_still_holds(written_demo, tmp_path):
                                        ensure_ascii=False).encode("utf-8")).hexdigest()
     assert seal_intact({**manifest, "seal": legacy})
     assert not seal_intact({**manifest, "seal": legacy, "seed": manifest["seed"] + 1})
+
+
+def test_a_folder_in_place_of_the_lock_file_is_named_with_its_fix(tmp_path, capsys,
+                                                                   monkeypatch):
+    """'.OUT.lock' a folder: "Is a directory; choose a writable output folder", in a
+    writable place (POSIX open(2) of a directory for writing fails with EISDIR)."""
+    config = make_bundle(tmp_path / "site")
+    (tmp_path / ".out.lock").mkdir()
+    _no_computing(monkeypatch)
+    assert main(["run", str(config), "--out", str(tmp_path / "out"), "--quiet"]) == 2
+    assert "is a folder, which fluxpart never makes; remove it" in _one_error_line(capsys)
+    assert not (tmp_path / "out").exists()
