@@ -861,6 +861,10 @@ def _why_not_a_file(path: Path, hint: str = "") -> str:
     was called missing) or nothing there."""
     if path.is_dir():
         return f"is a folder, not a file: give the file itself{hint}"
+    if path.exists():
+        # a named pipe or a device (`--input <(zcat x.gz)`, /dev/stdin) was "does not exist"
+        return ("is not a plain file (a pipe or a device); give the file itself (unpacked "
+                f"where it was compressed){hint}")
     return "does not exist"
 
 

@@ -330,3 +330,14 @@ def test_a_folder_in_place_of_the_lock_file_is_named_with_its_fix(tmp_path, caps
     assert main(["run", str(config), "--out", str(tmp_path / "out"), "--quiet"]) == 2
     assert "is a folder, which fluxpart never makes; remove it" in _one_error_line(capsys)
     assert not (tmp_path / "out").exists()
+
+
+def test_verify_names_a_pipe_given_as_input_as_such(tmp_path, capsys):
+    """`--input <(zcat tower.csv.gz)` (a named pipe, POSIX mkfifo) "does not exist"."""
+    config = make_bundle(tmp_path / "site")
+    assert main(["run", str(config), "--out", str(tmp_path / "out"), "--quiet"]) == 0
+    capsys.readouterr()
+    pipe = tmp_path / "tower.csv"
+    os.mkfifo(pipe)
+    assert main(["verify", str(tmp_path / "out"), "--input", str(pipe), "--quiet"]) == 2
+    assert "is not a plain file (a pipe or a device)" in _one_error_line(capsys)
