@@ -613,6 +613,10 @@ def _too_long(error: OSError) -> str:
             "the file system's limit, usually 255 bytes a name); choose a shorter name")
 
 
+#: The commands that compute a result and write (or compare) its platform record.
+_COMPUTING = ("run", "demo", "verify", "batch")
+
+
 def _tolerate_encoding(stream) -> str | None:
     """Let `stream` write characters its encoding lacks as escapes; return the error
     handler replaced (None where nothing changed).
@@ -657,6 +661,12 @@ def main(argv=None) -> int:
     # no sys.stdout, and the first print raised AttributeError, exit 1 whatever the verdict
     sys.stdout = _QuietWhenClosed(stdout if stdout is not None else open(os.devnull, "w"))
     try:
+        if args.command in _COMPUTING:
+            # before the command's memory is in use: OpenBLAS retries its buffers without
+            # end where a memory limit leaves it no room (fingerprint.load_blas_libraries)
+            from .fingerprint import load_blas_libraries
+
+            load_blas_libraries()
         with warnings.catch_warnings():
             # the commands print a result's warnings themselves, once, in their output
             warnings.simplefilter("ignore", FluxpartWarning)
@@ -687,6 +697,15 @@ def main(argv=None) -> int:
         except OSError:
             pass                    # a hung-up terminal takes no more output (EIO)
         return 128 + int(stop.signum)
+    except MemoryError:
+        # a memory limit (ulimit -v, a container's or a batch job's) reached inside NumPy or
+        # pandas: a traceback ending in _ArrayMemoryError; the write stages are undone on
+        # any exception (resultdir.swapped_in), so the folder is as it was
+        print(f"error: ran out of memory (a memory limit of this process: ulimit -v, a "
+              f"container's or a batch job's); "
+              f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
+              "memory", file=sys.stderr)
+        return 2
     except RuntimeError as error:
         if not str(error).startswith("Symlink loop"):
             raise

@@ -63,6 +63,7 @@ from .errors import (
     MissingColumnError,
     SpacingError,
 )
+from .fingerprint import load_blas_libraries
 from .partition import daytime, nighttime, respiration_form, temperature_choice
 from .result import Result, load  # noqa: F401  (re-exported: fluxpart.pipeline.load)
 from .site import Site
@@ -635,6 +636,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     config = _config(config)
     if not isinstance(site, Site):
         raise ConfigError(f"site must be a fluxpart.Site, got {type(site).__name__}")
+    load_blas_libraries()       # now, while memory is free (fingerprint.load_blas_libraries)
     # variables a site config's [input] accept_units kept as they are (a frame of the reader)
     accepted = tuple(getattr(frame, "attrs", {}).get("accept_units", ()))
     frame, notes = _prepare(frame, site)

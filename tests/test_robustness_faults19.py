@@ -341,3 +341,48 @@ def test_verify_names_a_pipe_given_as_input_as_such(tmp_path, capsys):
     os.mkfifo(pipe)
     assert main(["verify", str(tmp_path / "out"), "--input", str(pipe), "--quiet"]) == 2
     assert "is not a plain file (a pipe or a device)" in _one_error_line(capsys)
+
+
+# --------------------------------------------------------------------------- memory limits
+
+def test_the_tokenizer_out_of_memory_does_not_blame_the_file():
+    """pandas' C parser says "Error tokenizing data. C error: out of memory" under a memory
+    limit (ulimit -v 400 MB here); the message blamed the file and its delimiter."""
+    from fluxpart.io import _parser_message
+
+    text = _parser_message(Path("tower.csv"), ",",
+                           "Error tokenizing data. C error: out of memory")
+    assert "ran out of memory" in text and "not at fault" in text and "delimiter" not in text
+
+
+def test_running_out_of_memory_is_one_error_line(tmp_path, capsys, monkeypatch):
+    """NumPy's _ArrayMemoryError (a MemoryError) under ulimit -v 700 MB ended `run` in a
+    traceback."""
+    config = make_bundle(tmp_path / "site")
+
+    def exhausted(*args, **kwargs):
+        raise MemoryError("Unable to allocate 16.0 MiB")
+
+    monkeypatch.setattr(pipeline, "process_site_config", exhausted)
+    assert main(["run", str(config), "--out", str(tmp_path / "out"), "--quiet"]) == 2
+    assert "ran out of memory" in _one_error_line(capsys)
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["site"]
+
+
+def test_the_blas_of_the_platform_record_is_loaded_before_computing(tmp_path, monkeypatch):
+    """OpenBLAS loaded with the address space nearly used up retries its buffers without end
+    (measured: ulimit -v 500 MB, SciPy's OpenBLAS loaded for the platform record after the
+    run: 10 CPU minutes, the folder locked). It is loaded first now."""
+    from fluxpart import fingerprint
+
+    order = []
+    monkeypatch.setattr(fingerprint, "load_blas_libraries", lambda: order.append("blas"))
+
+    def computing(*args, **kwargs):
+        order.append("compute")
+        raise MemoryError
+
+    monkeypatch.setattr(pipeline, "process_site_config", computing)
+    config = make_bundle(tmp_path / "site")
+    assert main(["run", str(config), "--out", str(tmp_path / "out"), "--quiet"]) == 2
+    assert order == ["blas", "compute"]
