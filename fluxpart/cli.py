@@ -613,8 +613,9 @@ def _too_long(error: OSError) -> str:
             "the file system's limit, usually 255 bytes a name); choose a shorter name")
 
 
-#: The commands that compute a result and write (or compare) its platform record.
-_COMPUTING = ("run", "demo", "verify", "batch")
+#: The commands that compute a result in this process and write (or compare) its platform
+#: record (batch computes in its workers, whose `process` loads them first).
+_COMPUTING = ("run", "demo", "verify")
 
 
 def _tolerate_encoding(stream) -> str | None:
