@@ -70,6 +70,7 @@ from .manifest import (
     library_versions,
     read_manifest,
     seal_intact,
+    shown_name,
 )
 from .resultdir import check_folder, folder_lock
 from .schema import TIME_CONVENTION, units_for_table
@@ -734,8 +735,13 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
 
 
 def _write_failures(outcomes, out: Path) -> pd.DataFrame:
-    rows = [{"site": o.key, "config": o.config, "error": o.error, "message": o.message,
-             "kind": o.kind} for o in outcomes if o.status == "failed"]
+    # a path that is not UTF-8 (a name from another code page, carried as lone surrogates)
+    # is shown with \xNN escapes: Arrow strings are UTF-8, and such a name in a failing
+    # site's config path or message ended the whole batch in a traceback
+    rows = [{name: shown_name(value) if isinstance(value, str) else value
+             for name, value in {"site": o.key, "config": o.config, "error": o.error,
+                                 "message": o.message, "kind": o.kind}.items()}
+            for o in outcomes if o.status == "failed"]
     frame = pd.DataFrame({name: pd.Series([row[name] for row in rows], dtype="str")
                           for name in _FAILURE_COLUMNS})
     write_table(frame.set_index("site"), out / FAILURES_FILE, _FAILURE_COLUMNS, "failures")

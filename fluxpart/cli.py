@@ -8,6 +8,7 @@ traceback is shown only for a fault of fluxpart itself.
 from __future__ import annotations
 
 import argparse
+import contextlib
 import datetime
 import errno
 import gc
@@ -222,6 +223,20 @@ def _check_output_folder(out: Path, site_name=None) -> None:
                             f"({error.strerror or error}); choose a writable place") from None
 
 
+def _check_recordable_paths(site_config, config_path, out: Path) -> None:
+    """Fail before any computation where the manifest could not record the input or site
+    config path (a name that is not UTF-8: :func:`fluxpart.manifest.undecodable_paths`)."""
+    from .manifest import undecodable_message, undecodable_paths
+
+    provenance = {"input": {"path": str(Path(site_config.input_path).resolve()),
+                            "files": [{"path": str(Path(p).resolve())}
+                                      for p in site_config.input_paths]},
+                  "site_config": {"path": str(Path(config_path).resolve())}}
+    undecodable = undecodable_paths(provenance, out.absolute())
+    if undecodable:
+        raise FluxpartError(undecodable_message(undecodable[0]))
+
+
 def _command_run(args) -> int:
     from .config import Config
     from .io import read_site_config
@@ -232,13 +247,16 @@ def _command_run(args) -> int:
     out = Path(args.out) if args.out else Path(args.config).with_suffix("").parent / (
         Path(args.config).stem + "-output")
     _check_output_folder(out, lambda: read_site_config(args.config).site.name)
+    _check_recordable_paths(read_site_config(args.config), args.config, out)
     bar, advance = _progress_bar(config, args.quiet)
     # the folder's lock is held from the start: a second run into the same --out waits
     # for this one (saying so on stderr) instead of computing alongside and overwriting it
     out.absolute().parent.mkdir(parents=True, exist_ok=True)
     with folder_lock(out, DEFAULT_LOCK_TIMEOUT, remove=True):
         with bar:
-            result = process_site_config(args.config, config, progress=advance)
+            # the settings are read again with the site and recorded with the text they
+            # came from (`config` above only sizes the progress bar)
+            result = process_site_config(args.config, progress=advance)
         result.write(out, lock_held=True)
     print(f"fluxpart run: {result.site.name}, {len(result.timeseries)} records")
     print()
@@ -568,6 +586,14 @@ def _parse(argv):
     return args
 
 
+@contextlib.contextmanager
+def _suppress_value_error():
+    try:
+        yield
+    except (ValueError, OSError):
+        pass
+
+
 def _cwd_gone() -> bool:
     """Whether the process's current folder has been deleted."""
     try:
@@ -587,6 +613,35 @@ def _too_long(error: OSError) -> str:
             "the file system's limit, usually 255 bytes a name); choose a shorter name")
 
 
+#: The commands that compute a result in this process and write (or compare) its platform
+#: record (batch computes in its workers, whose `process` loads them first).
+_COMPUTING = ("run", "demo", "verify")
+
+
+def _tolerate_encoding(stream) -> str | None:
+    """Let `stream` write characters its encoding lacks as escapes; return the error
+    handler replaced (None where nothing changed).
+
+    The output names units and ranges with characters beyond ASCII (µ, °, −, –). Where
+    standard output is ASCII (``LC_ALL=C`` with ``PYTHONUTF8=0``, ``PYTHONIOENCODING=ascii``,
+    an old terminal) or another 8-bit code page, the first such character raised
+    UnicodeEncodeError: a traceback and exit 1 after a run had written its result, and
+    whatever verify's verdict. Python writes standard error so already
+    (``backslashreplace``).
+    """
+    errors = getattr(stream, "errors", None)
+    # surrogateescape: Python's choice for standard output under the C or POSIX locale
+    # (PYTHONUTF8=0), which writes a file name's undecodable bytes but fails on any other
+    # character the encoding lacks
+    if errors not in ("strict", "surrogateescape") or not hasattr(stream, "reconfigure"):
+        return None
+    try:
+        stream.reconfigure(errors="backslashreplace")
+    except (OSError, ValueError, AttributeError):   # a detached or closed stream
+        return None
+    return errors
+
+
 def main(argv=None) -> int:
     """Run the command line; return the exit status.
 
@@ -602,10 +657,17 @@ def main(argv=None) -> int:
     if threading.current_thread() is threading.main_thread():
         replaced = _install_stop_handlers()
     stdout = sys.stdout
+    strict = _tolerate_encoding(stdout)
     # started with standard output closed (`>&-`, some service managers): Python then has
     # no sys.stdout, and the first print raised AttributeError, exit 1 whatever the verdict
     sys.stdout = _QuietWhenClosed(stdout if stdout is not None else open(os.devnull, "w"))
     try:
+        if args.command in _COMPUTING:
+            # before the command's memory is in use: OpenBLAS retries its buffers without
+            # end where a memory limit leaves it no room (fingerprint.load_blas_libraries)
+            from .fingerprint import load_blas_libraries
+
+            load_blas_libraries()
         with warnings.catch_warnings():
             # the commands print a result's warnings themselves, once, in their output
             warnings.simplefilter("ignore", FluxpartWarning)
@@ -636,6 +698,25 @@ def main(argv=None) -> int:
         except OSError:
             pass                    # a hung-up terminal takes no more output (EIO)
         return 128 + int(stop.signum)
+    except MemoryError:
+        # a memory limit (ulimit -v, a container's or a batch job's) reached inside NumPy or
+        # pandas: a traceback ending in _ArrayMemoryError; the write stages are undone on
+        # any exception (resultdir.swapped_in), so the folder is as it was
+        print(f"error: ran out of memory (a memory limit of this process: ulimit -v, a "
+              f"container's or a batch job's); "
+              f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
+              "memory", file=sys.stderr)
+        return 2
+    except RuntimeError as error:
+        if not str(error).startswith("Symlink loop"):
+            raise
+        # Path.resolve of a path through a symbolic link that leads to itself (Python
+        # < 3.13 raises RuntimeError, later ones OSError ELOOP): a traceback in run and report
+        where = str(error).removeprefix("Symlink loop from ").strip("'")
+        print(f"error: the path {where!r} leads through a symbolic link back to itself "
+              f"({os.strerror(errno.ELOOP)}); fix or remove the link, or give another path",
+              file=sys.stderr)
+        return 2
     except BrokenPipeError:          # output piped into e.g. `head`, which closed early
         sys.stderr.close()
         return 0
@@ -647,6 +728,11 @@ def main(argv=None) -> int:
                   "this shell was in it), so relative paths cannot be found: cd to an "
                   "existing folder, or give absolute paths", file=sys.stderr)
             return 2
+        if error.errno == errno.ELOOP:
+            print(f"error: the path {str(error.filename or '')!r} leads through a symbolic "
+                  f"link back to itself ({os.strerror(errno.ELOOP)}); fix or remove the link, "
+                  "or give another path", file=sys.stderr)
+            return 2
         if error.errno != errno.ENAMETOOLONG:
             raise
         # a path given on the command line (or a name derived from it) longer than the
@@ -656,6 +742,9 @@ def main(argv=None) -> int:
         return 2
     finally:
         sys.stdout = stdout
+        if strict is not None:
+            with _suppress_value_error():
+                stdout.reconfigure(errors=strict)
         for signum, handler in replaced.items():
             signal.signal(signum, handler)
         gc.set_threshold(*thresholds)

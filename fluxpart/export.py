@@ -41,6 +41,7 @@ version 1.10. https://cfconventions.org (sections 2.5.1 missing data, 3.3 standa
 
 from __future__ import annotations
 
+import errno
 import os
 import re
 import tempfile
@@ -369,10 +370,18 @@ def write_netcdf(result, path) -> Path:
         handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp",
                                              dir=path.parent)
     except OSError as error:        # a read-only medium, no permission, a file in the path
+        if error.errno == errno.ENAMETOOLONG:
+            # the name fits, its temporary file '.NAME.xxxxxxxx.tmp' (14 bytes more) does not
+            raise OutputError(f"--netcdf {str(path)!r}: the name is too long for the temporary "
+                              f"file written beside it first ('.NAME.xxxxxxxx.tmp', 14 bytes "
+                              f"longer: {error.strerror}); choose a name of at most "
+                              f"{_name_limit(path.parent) - 14} bytes") from None
         raise OutputError(f"--netcdf {str(path)!r}: cannot write in {str(path.parent)!r} "
                           f"({error.strerror or error}); choose a writable place") from None
-    os.close(handle)
     try:
+        # inside: a network file system reports a failed write (full quota, I/O error) at
+        # close, and the error then escaped as a traceback leaving the temporary file
+        os.close(handle)
         dataset.to_netcdf(temporary, engine=engine, format="NETCDF4")
         set_mode(temporary, file_mode())
         os.replace(temporary, path)
@@ -390,6 +399,15 @@ def write_netcdf(result, path) -> Path:
         Path(temporary).unlink(missing_ok=True)
         raise
     return path
+
+
+def _name_limit(folder: Path) -> int:
+    """The longest file name [bytes] in `folder` (``pathconf`` ``PC_NAME_MAX``, else 255:
+    common practice on ext4, XFS, APFS, NTFS)."""
+    try:
+        return int(os.pathconf(folder, "PC_NAME_MAX"))
+    except (OSError, ValueError, AttributeError):
+        return 255
 
 
 def _sweep_temporary(path: Path, started: float) -> None:

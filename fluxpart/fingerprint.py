@@ -24,7 +24,7 @@ import platform
 from functools import lru_cache
 from pathlib import Path
 
-__all__ = ["code_fingerprint", "platform_differences", "platform_record"]
+__all__ = ["code_fingerprint", "load_blas_libraries", "platform_differences", "platform_record"]
 
 
 @lru_cache(maxsize=1)
@@ -95,6 +95,21 @@ def _load_scipy_blas() -> None:
         libraries = []
     if not libraries:
         import scipy.linalg  # noqa: F401
+
+
+def load_blas_libraries() -> None:
+    """Load the BLAS libraries the platform record lists (:func:`platform_record`) now.
+
+    OpenBLAS allocates its buffers when it is loaded, and where that fails (the address
+    space of a memory limit, ``ulimit -v`` or a batch job's, nearly used up) it retries
+    without end: a run loading SciPy's OpenBLAS only for the record, after its whole
+    computation, hung there holding its folder's lock (0.5 GB limit: 10 minutes of CPU and
+    counting). Called at the start of a computation, when its memory is still free; a
+    library loaded once is not loaded again (``dlopen``), so the record is the same.
+    """
+    import numpy  # noqa: F401
+
+    _load_scipy_blas()
 
 
 def _blas_libraries() -> list[dict]:

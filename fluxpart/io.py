@@ -1785,6 +1785,12 @@ def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "
     A header line without `delimiter` that holds another separator is a file of another
     delimiter whose data lines split at decimal commas, as many fields as each line's
     values hold commas (a line with a missing code holds fewer than the next one)."""
+    if "out of memory" in error:
+        # the tokenizer's buffer allocation failed (ulimit -v, a container's or batch job's
+        # memory limit): the file was blamed, with its delimiter
+        return (f"input file {str(path)!r}: reading it ran out of memory (a memory limit of "
+                "this process: ulimit -v, a container's or a batch job's); the file is not at "
+                "fault: give the process more memory")
     found = re.search(r"Expected (\d+) fields in line (\d+), saw (\d+)", error)
     separator = next((c for c in (";", "\t", "|") if c in header_line), None)
     if (separator and delimiter not in (_WHITESPACE, separator)

@@ -32,6 +32,7 @@ from __future__ import annotations
 
 import hashlib
 import json
+import math
 import os
 import platform
 import unicodedata
@@ -40,8 +41,10 @@ from pathlib import Path
 from .errors import InputFileError
 
 __all__ = ["CAUTION", "MANIFEST_FILE", "MANIFEST_FORMAT", "REPORT_FOLDER", "RUN_LOG",
-           "build_manifest", "library_versions", "manifest_seal", "portable_provenance",
-           "read_manifest", "recorded_path", "recorded_paths", "seal_intact", "without_paths"]
+           "build_manifest", "escaped_paths", "library_versions", "manifest_seal", "name_in_other_case",
+           "portable_provenance", "read_manifest", "recorded_path", "recorded_paths",
+           "seal_intact", "shown_name", "undecodable_message", "undecodable_paths",
+           "without_paths"]
 
 MANIFEST_FORMAT = "fluxpart-result/2"
 MANIFEST_FILE = "manifest.json"
@@ -93,20 +96,46 @@ def _jsonable(value):
     return json.loads(json.dumps(value, default=str))
 
 
-def manifest_seal(manifest: dict) -> str:
-    """Return the SHA-256 of the manifest's content without its ``seal`` entry.
+def _whole_numbers_as_integers(value):
+    """`value` with every finite float that is a whole number as an int, at any depth."""
+    if isinstance(value, float) and math.isfinite(value) and value.is_integer():
+        return int(value)
+    if isinstance(value, dict):
+        return {key: _whole_numbers_as_integers(item) for key, item in value.items()}
+    if isinstance(value, list):
+        return [_whole_numbers_as_integers(item) for item in value]
+    return value
 
-    The content is serialised canonically (sorted keys, no whitespace), so
-    re-indenting the file does not change the seal but changing any value does.
-    """
+
+def _content_sha256(manifest: dict, *, whole_numbers: bool) -> str:
     content = {key: value for key, value in manifest.items() if key != "seal"}
+    if whole_numbers:
+        content = _whole_numbers_as_integers(content)
     text = json.dumps(content, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
     return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
+def manifest_seal(manifest: dict) -> str:
+    """Return the SHA-256 of the manifest's content without its ``seal`` entry.
+
+    The content is serialised canonically (sorted keys, no whitespace, and, since
+    faults19, every whole number written as an integer: ``250.0`` as ``250``), so
+    re-indenting the file, also with a tool that writes numbers its own way (``jq``,
+    JavaScript's ``JSON.stringify`` drop the ``.0``), does not change the seal, but
+    changing any value does.
+    """
+    return _content_sha256(manifest, whole_numbers=True)
+
+
 def seal_intact(manifest: dict) -> bool:
-    """True when the manifest's ``seal`` matches its content."""
-    return manifest.get("seal") == manifest_seal(manifest)
+    """True when the manifest's ``seal`` matches its content.
+
+    A seal of fluxpart 0.20.0 or earlier, computed with whole floats as written
+    (``250.0``), is accepted as well (such a manifest re-indented by ``jq`` still fails).
+    """
+    seal = manifest.get("seal")
+    return seal == manifest_seal(manifest) or seal == _content_sha256(manifest,
+                                                                      whole_numbers=False)
 
 
 def _relative(path_text, directory: Path):
@@ -156,6 +185,51 @@ def _path_entries(provenance: dict) -> list[dict]:
                 found += [f for f in entry.get("files") or [] if isinstance(f, dict)
                           and "path" in f]
     return found
+
+
+def shown_name(text: str) -> str:
+    """`text` (a path from the operating system) with each byte that is not UTF-8 shown as
+    ``\\xNN``: Python carries such bytes of a file name as lone surrogates
+    (``surrogateescape``), which no UTF-8 file can hold."""
+    return text.encode("utf-8", "surrogateescape").decode("utf-8", "backslashreplace")
+
+
+def undecodable_paths(provenance: dict, directory) -> list[str]:
+    """The recorded paths of `provenance` that a manifest cannot hold, shown readably.
+
+    A name made on a system with another code page (a latin-1 or cp1252 share, an archive
+    unpacked without converting its names) reaches Python with its bytes that are not UTF-8
+    as lone surrogates; the manifest is UTF-8 JSON, and writing it failed with a
+    UnicodeEncodeError traceback after the whole run had been computed. Only the paths as
+    recorded (relative to the result folder `directory`, :func:`portable_provenance`)
+    count: a parent folder of both the result and the input does not appear in them.
+    """
+    found = []
+    for entry in _path_entries(portable_provenance(provenance, directory)):
+        path = entry.get("path")
+        if isinstance(path, str) and path != shown_name(path):
+            found.append(shown_name(path))
+    return found
+
+
+def escaped_paths(provenance: dict) -> dict:
+    """A copy of `provenance` whose recorded paths show bytes that are not UTF-8 as
+    ``\\xNN`` (:func:`shown_name`): for a scratch copy of a result whose paths are never
+    compared (verify's rerun from an input given in such a folder)."""
+    out = _jsonable(provenance)
+    for entry in _path_entries(out):
+        if isinstance(entry.get("path"), str):
+            entry["path"] = shown_name(entry["path"])
+    return out
+
+
+def undecodable_message(shown: str) -> str:
+    """The refusal of a path whose name is not UTF-8 (shown by :func:`shown_name`)."""
+    return (f"the path {shown!r} holds a name that is not UTF-8 text (the bytes shown as \\x..: "
+            "a name made on a system with another code page, or unpacked from an archive "
+            "without converting it); a result records its input and site config paths as "
+            "UTF-8 text, so rename that folder or file to UTF-8 (e.g. with convmv) and run "
+            "again")
 
 
 def without_paths(provenance: dict) -> dict:
@@ -308,6 +382,15 @@ def _once_each(pairs: list) -> dict:
     return seen
 
 
+def name_in_other_case(directory: Path, name: str) -> str | None:
+    """The entry of `directory` whose name equals `name` but for case, or None."""
+    try:
+        return next((entry.name for entry in directory.iterdir()
+                     if entry.name != name and entry.name.casefold() == name.casefold()), None)
+    except OSError:
+        return None
+
+
 def _read_manifest(directory: Path) -> dict:
     path = directory / MANIFEST_FILE
     if not Path(directory).exists():
@@ -317,6 +400,19 @@ def _read_manifest(directory: Path) -> dict:
         raise InputFileError(f"{str(directory)!r} is a file, not a result folder: give the "
                              "folder that fluxpart run or batch wrote (its --out)")
     if not path.is_file():
+        other_case = name_in_other_case(Path(directory), MANIFEST_FILE)
+        if path.exists() or path.is_symlink():
+            raise InputFileError(f"{str(path)!r} is not a plain file (a folder, a pipe, a "
+                                 "device or a dangling link): put the manifest.json the run "
+                                 "wrote there")
+        if other_case:
+            # a copy through a tool or file system that changed the case of names (DOS
+            # 8.3 names shown upper-case, some zip and FTP clients): the folder is a result
+            # folder, and "not a fluxpart result folder" hid the one fix
+            raise InputFileError(f"{str(path)!r} does not exist, but {other_case!r} does: the "
+                                 "names in the folder changed case (copied by a tool or "
+                                 "through a file system that does not keep case?); rename "
+                                 "each file to the lower-case name the manifest lists")
         # a batch output folder holds result folders, sealed by network.json (batch.py)
         batch = ("; it is a batch output folder: give one site's folder in it "
                  f"({str(Path(directory) / '<site key>')!r}), or read its network tables "

@@ -63,6 +63,7 @@ from .errors import (
     MissingColumnError,
     SpacingError,
 )
+from .fingerprint import load_blas_libraries
 from .partition import daytime, nighttime, respiration_form, temperature_choice
 from .result import Result, load  # noqa: F401  (re-exported: fluxpart.pipeline.load)
 from .site import Site
@@ -636,6 +637,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     config = _config(config)
     if not isinstance(site, Site):
         raise ConfigError(f"site must be a fluxpart.Site, got {type(site).__name__}")
+    load_blas_libraries()       # now, while memory is free (fingerprint.load_blas_libraries)
     # variables a site config's [input] accept_units kept as they are (a frame of the reader)
     accepted = tuple(getattr(frame, "attrs", {}).get("accept_units", ()))
     frame, notes = _prepare(frame, site)
@@ -1125,8 +1127,8 @@ def process_site_config(path, config: Config | None = None, *, progress=None,
     # the code that runs is the code loaded now (the fingerprint is cached per process):
     # an edit to the package's files during the run must not be recorded as its code
     code_fingerprint()
-    site_config = read_site_config(path, input_paths=given)
     config_bytes = Path(path).read_bytes()
+    site_config = read_site_config(path, input_paths=given)
     input_before = site_config.input_record()
     frame, report = site_config.read()
     input_record = site_config.input_record()
@@ -1136,6 +1138,12 @@ def process_site_config(path, config: Config | None = None, *, progress=None,
             "differs before and after); the result would record another file than the one "
             "computed from: rerun once the file is complete (a logger or copy still writing?)")
     from_file = Config.from_toml(path)
+    if Path(path).read_bytes() != config_bytes:
+        # saved from an editor while the run read its input: the site, the settings and the
+        # recorded text came from different versions (a genuine result then failed verify)
+        raise InputFileError(
+            f"site config {str(path)!r} changed while the run read it; the result would "
+            "record another version than the one computed from: rerun once it is saved")
     config = from_file if config is None else config
     provenance = {
         # where the settings came from: verify reruns from the site config's own

@@ -55,7 +55,7 @@ from .figures import (
     unfitted_methods,
     window_status,
 )
-from .manifest import CAUTION
+from .manifest import CAUTION, shown_name
 from .resultdir import (
     DEFAULT_LOCK_TIMEOUT,
     clean_leftovers,
@@ -488,7 +488,10 @@ def _field_metadata(path: Path) -> dict[str, tuple[str, str]]:
     """Column -> (unit, description) from a table's Arrow field metadata."""
     import pyarrow.parquet as pq
 
-    schema = pq.read_schema(path)
+    from .store import parquet_source
+
+    with parquet_source(path) as source:
+        schema = pq.read_schema(source)
     out = {}
     for field in schema:
         meta = field.metadata or {}
@@ -991,7 +994,9 @@ def build_report(directory, out=None, *, progress=None) -> Path:
     interval = interval_minutes(written.timeseries.index)
     tick = progress if progress is not None else (lambda: None)
     figures = draw_figures(written, tick)
-    page = _page(written, directory, figures, interval).encode("utf-8")
+    # a folder name that is not UTF-8 (another code page) is shown with \xNN escapes: the
+    # page is UTF-8, and such a name failed its encoding with a traceback
+    page = shown_name(_page(written, directory, figures, interval)).encode("utf-8")
     # every byte is ready before the first file is written, and the files go into a staging
     # folder beside `out` that replaces it whole: a failure leaves the earlier report (or
     # none), never new figures beside an old page

@@ -61,8 +61,12 @@ from .manifest import (
     build_manifest,
     library_versions,
     manifest_bytes,
+    name_in_other_case,
     read_manifest,
     seal_intact,
+    shown_name,
+    undecodable_message,
+    undecodable_paths,
 )
 from .store import (
     atomic_write_bytes,
@@ -178,6 +182,12 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
             # numbers?): hold the lock as filelock gives it, and never delete the file
             locked.clear()
     except OSError as error:
+        if path.is_dir() and not path.is_symlink():
+            # a folder of that name (made by hand, or by a copy tool): "choose a writable
+            # output folder" sent the user after a permission that was never missing
+            raise OutputError(f"the lock file {str(path)!r} beside the output folder is a "
+                              "folder, which fluxpart never makes; remove it (or rename it) "
+                              "and run again") from None
         raise OutputError(f"cannot create the lock file {str(path)!r} beside the output folder: "
                           f"{error.strerror or error}; choose a writable output folder") from None
     try:
@@ -459,6 +469,9 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
         another site's result; None for a new or empty folder or one of this kind.
     """
     directory = Path(directory)
+    too_long = _name_without_room(directory)
+    if too_long:
+        return too_long
     if not directory.exists():
         return None
     if not directory.is_dir():
@@ -486,6 +499,43 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
                 "purpose?); the new one would be swapped in while the old one could not be "
                 "removed and would stay hidden beside it: make it writable (chmod -R u+w)")
     return other_site_reason(directory, site_name)
+
+
+#: Characters the longest name written beside a folder ``NAME`` adds to it: its staging or
+#: retired copy ``.NAME.staging-`` + 8 random characters (:func:`make_staging`).
+_SIBLING_EXTRA = len(f"..{_STAGING}") + 8
+
+
+def _name_limit(directory: Path) -> int:
+    """The longest file name [bytes] the file system holding `directory` (or its nearest
+    existing parent) allows: ``pathconf`` ``PC_NAME_MAX``, else 255 (common practice:
+    ext4, XFS, Btrfs, APFS, NTFS)."""
+    place = directory.parent
+    while not place.exists() and place != place.parent:
+        place = place.parent
+    try:
+        return int(os.pathconf(place, "PC_NAME_MAX"))
+    except (OSError, ValueError, AttributeError):
+        return 255
+
+
+def _name_without_room(directory: Path) -> str | None:
+    """Why the name of `directory` is too long for the staging folder written beside it,
+    or None.
+
+    The folder is written as ``.NAME.staging-XXXXXXXX`` beside it, 18 characters longer
+    than its own name: a name within the file system's limit (255 bytes a name) but
+    within 18 of it was computed in full and then failed at its first write with "File
+    name too long" (and at ``NAME_MAX`` - 5 the lock file already did, before computing).
+    """
+    name = os.fsencode(directory.name)
+    limit = _name_limit(directory)
+    if len(name) + _SIBLING_EXTRA <= limit or len(name) > limit:
+        return None     # fits; or beyond the limit itself: the system's ENAMETOOLONG names it
+    return (f"has a name of {len(name)} bytes; it is written as a folder named "
+            f"'.NAME.{_STAGING}XXXXXXXX' beside it ({_SIBLING_EXTRA} bytes more), beyond this "
+            f"file system's limit of {limit} bytes a name: choose a name of at most "
+            f"{limit - _SIBLING_EXTRA} bytes")
 
 
 #: Why a mount point is never replaced whole: renaming it fails (EBUSY, rename(2)).
@@ -607,15 +657,17 @@ def run_log_record(directory: Path, provenance: dict) -> dict:
     for key in ("input", "site_config"):
         entry = provenance.get(key)
         if isinstance(entry, dict) and "path" in entry:
-            inputs[key] = str(entry["path"])
+            inputs[key] = shown_name(str(entry["path"]))
+    # a name that is not UTF-8 (the working folder, an argument) is shown with \xNN escapes:
+    # the log is UTF-8 JSON, and such a name failed the write after the whole run
     return {
         "written_utc": datetime.now(timezone.utc).isoformat(timespec="seconds"),
         "user": user,
         "host": socket.gethostname(),
-        "working_directory": working_directory,
-        "command_line": [sys.executable, *sys.argv],
+        "working_directory": shown_name(working_directory),
+        "command_line": [shown_name(str(part)) for part in (sys.executable, *sys.argv)],
         "process_id": os.getpid(),
-        "result_folder": str(directory),
+        "result_folder": shown_name(str(directory)),
         "absolute_paths": inputs,
         "note": "This file is listed in manifest.json but not hashed: it may differ between "
                 "runs that give identical tables.",
@@ -674,6 +726,10 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
         Nothing is changed in that case.
     """
     directory = _absolute(directory)
+    undecodable = undecodable_paths(provenance if isinstance(provenance, dict) else {},
+                                    directory)
+    if undecodable:
+        raise OutputError(undecodable_message(undecodable[0]))
     site_name = site.get("name") if isinstance(site, dict) else None
     reason = replace_refusal(directory, site_name)
     if reason:
@@ -819,6 +875,14 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
                       "such as git-annex or DVC not fetched?)"
                       if path.is_symlink() and not path.exists() else
                       "is listed in the manifest but missing from the folder")
+            if path.exists():
+                detail = ("is listed in the manifest but is not a plain file (a folder, a "
+                          "pipe or a device)")
+            other_case = name_in_other_case(directory, file)
+            if other_case and not path.exists():
+                detail += (f"; {other_case!r} is there, its name in another case (copied by a "
+                           "tool or through a file system that does not keep case?): rename "
+                           "it to the name the manifest lists")
             problems.append(FolderProblem(file, "missing", detail))
             continue
         actual = file_sha256(path)

@@ -61,6 +61,7 @@ verification.
 
 from __future__ import annotations
 
+import dataclasses
 import hashlib
 import json
 import os
@@ -76,7 +77,14 @@ import pandas as pd
 from .config import Config
 from .errors import FluxpartError, InputFileError, OutputError
 from .fingerprint import code_fingerprint, platform_differences, platform_record
-from .manifest import CAUTION, library_versions, read_manifest, recorded_path, without_paths
+from .manifest import (
+    CAUTION,
+    escaped_paths,
+    library_versions,
+    read_manifest,
+    recorded_path,
+    without_paths,
+)
 from .resultdir import interrupted_writes
 from .store import file_sha256, read_table
 
@@ -635,7 +643,10 @@ def _schema_record(path: Path) -> dict:
     :func:`field_differences` names e.g. ``fluxpart.site.utc_offset``)."""
     import pyarrow.parquet as pq
 
-    schema = pq.read_schema(path)
+    from .store import parquet_source
+
+    with parquet_source(path) as source:
+        schema = pq.read_schema(source)
     out = {}
     for item in schema:
         out[f"{item.name} type"] = str(item.type)
@@ -850,6 +861,10 @@ def _why_not_a_file(path: Path, hint: str = "") -> str:
     was called missing) or nothing there."""
     if path.is_dir():
         return f"is a folder, not a file: give the file itself{hint}"
+    if path.exists():
+        # a named pipe or a device (`--input <(zcat x.gz)`, /dev/stdin) was "does not exist"
+        return ("is not a plain file (a pipe or a device); give the file itself (unpacked "
+                f"where it was compressed){hint}")
     return "does not exist"
 
 
@@ -1116,12 +1131,14 @@ def _rewritten_elsewhere(path: Path, index=None):
     import pyarrow as pa
     import pyarrow.parquet as pq
 
-    from .store import _SCHEMA_KEY
+    from .store import _SCHEMA_KEY, parquet_source
 
     try:
-        if _SCHEMA_KEY in (pq.read_schema(path).metadata or {}):
-            return None                 # fluxpart's own, damaged otherwise: named as such
-        frame = pd.read_parquet(path)
+        with parquet_source(path) as source:
+            if _SCHEMA_KEY in (pq.read_schema(source).metadata or {}):
+                return None             # fluxpart's own, damaged otherwise: named as such
+        with parquet_source(path) as source:
+            frame = pd.read_parquet(source)
     except (OSError, ValueError, ImportError, pa.ArrowException):
         return None
     if isinstance(index, str) and index in frame.columns and isinstance(frame.index,
@@ -1332,7 +1349,12 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                                 environment=tuple(environment), code_changed=code_changed,
                                 exact=exact, notes=tuple(notes))
         try:
-            again = result.write(scratch / "recomputed")
+            # the rerun's recorded paths are never compared (`without_paths`): an input or
+            # site config given in a folder named in another code page is written escaped
+            # (the scratch manifest could not hold it: "could not be written", exit 2)
+            again = dataclasses.replace(
+                result, provenance=escaped_paths(result.provenance)).write(
+                scratch / "recomputed")
         except OutputError as error:
             # a full temporary folder or the file-size limit (ulimit -f): the message named
             # the scratch folder as a "result folder" whose "earlier result" was unchanged
