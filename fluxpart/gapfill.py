@@ -230,6 +230,10 @@ _SLOPE_RIDGE = 0.01
 # gap (same time window); see local_linear_correction
 _SLOPE_TOLERANCES = 3.0
 ESTIMATES = ("local_linear", "donor_mean")
+# Tair and VPD correct the radiation step's fills only within windows of ±7 days (the
+# flow chart's quality B): within a week the canopy is the same, across months a slope
+# on temperature carries the season's change of the canopy
+_REGRESSOR_DAYS = 7
 #: Longest driver gap filled by linear interpolation [hours]; our choice (see
 #: :func:`fill_drivers`).
 _INTERPOLATION_HOURS = 3.0
@@ -518,7 +522,7 @@ def _block_records(n_gaps, gap_span, half_width):
 
 
 def _similar_conditions_pass(values, usable, gaps, half_width, conditions, tables,
-                             local_linear=False):
+                             local_linear=False, regressors=()):
     """Mean, count and std of usable records similar to each gap within ±half_width.
 
     ``usable`` are the sorted record numbers of measured target records whose
@@ -527,7 +531,9 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
     :class:`_RankTables`. Record j is similar to gap i when ``x[i] - tolerance
     <= x[j] <= x[i] + tolerance`` for every driver x (bounds in float64) and
     ``|j - i| <= half_width``. With ``local_linear`` the mean is moved by
-    :func:`local_linear_correction` for the donors' driver offset from the gap.
+    :func:`local_linear_correction` for the donors' driver offset from the gap, on the
+    condition drivers and on the (driver, tolerance) pairs of ``regressors``, drivers
+    that do not choose the donors (NaN allowed).
     """
     mean = np.full(gaps.size, np.nan)
     count = np.zeros(gaps.size, dtype=np.int64)
@@ -542,7 +548,8 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
     time_low = np.searchsorted(usable, gaps - half_width, side="left")
     time_high = np.searchsorted(usable, gaps + half_width, side="right")
     usable_values = values[usable]
-    usable_drivers = [driver[usable] for driver, _ in conditions] if local_linear else []
+    slope_drivers = [*conditions, *regressors] if local_linear else []
+    usable_drivers = [driver[usable] for driver, _ in slope_drivers]
     lowers = [driver[gaps] - _at(tolerance, gaps) for driver, tolerance in conditions]
     uppers = [driver[gaps] + _at(tolerance, gaps) for driver, tolerance in conditions]
     # bounds of the local-linear slope records
@@ -578,17 +585,24 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
             starts_w = np.cumsum(n_w) - n_w
             picked_w = usable_values[p:q][column_w]
             residual_w = picked_w - np.repeat(np.add.reduceat(picked_w, starts_w) / n_w, n_w)
-            donor_means = [np.add.reduceat(x[p:q][column], run_starts) / n_found
-                           for x in usable_drivers]
+            donor_means = [_run_means(x[p:q][column], run_starts) for x in usable_drivers]
             found_mean = found_mean + local_linear_correction(
                 residual_w, [x[p:q][column_w] for x in usable_drivers],
-                [driver[gaps[rows]] for driver, _ in conditions],
-                [_at(tolerance, gaps[rows]) for _, tolerance in conditions],
+                [driver[gaps[rows]] for driver, _ in slope_drivers],
+                [_at(tolerance, gaps[rows]) for _, tolerance in slope_drivers],
                 starts_w, n_w, donor_means)
         mean[rows] = found_mean
         count[rows] = n_found
         spread[rows] = np.sqrt(np.add.reduceat(residual * residual, run_starts) / n_found)
     return mean, count, spread
+
+
+def _run_means(x, run_starts):
+    """Mean of each run of `x` (runs start at `run_starts`), NaN values left out."""
+    present = ~np.isnan(x)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return (np.add.reduceat(np.where(present, x, 0.0), run_starts)
+                / np.add.reduceat(present, run_starts))
 
 
 def _similar_runs(keys, n_rows, width):
@@ -686,10 +700,16 @@ def _local_linear(residual, donor_drivers, gap_drivers, tolerances, run_starts, 
     for j, (x, at_gap, tolerance) in enumerate(zip(donor_drivers, gap_drivers, tolerances,
                                                    strict=True)):
         tolerance = np.broadcast_to(np.asarray(tolerance, dtype=float), (n_gaps,))
-        donor_mean = np.add.reduceat(x, run_starts) / counts
-        scaled.append((x - np.repeat(donor_mean, counts)) / np.repeat(tolerance, counts))
+        # a regressor missing at a record (NaN) sits at its records' mean: no leverage
+        present = ~np.isnan(x)
+        donor_mean = (np.add.reduceat(np.where(present, x, 0.0), run_starts)
+                      / np.add.reduceat(present, run_starts))
+        scaled.append(np.where(present, x - np.repeat(donor_mean, counts), 0.0)
+                      / np.repeat(tolerance, counts))
         reference = donor_mean if reference_means is None else reference_means[j]
-        offset[:, j] = (at_gap - reference) / tolerance
+        # ... and missing at the gap (or at every donor): no offset
+        relative = (at_gap - reference) / tolerance
+        offset[:, j] = np.where(np.isnan(relative), 0.0, relative)
     gram = np.empty((n_gaps, k, k))
     moment = np.empty((n_gaps, k))
     for i in range(k):
@@ -809,7 +829,7 @@ def _diurnal_course_pass(values, measured, gaps, half_width_days, per_day, diurn
 
 def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_conditions,
                  max_window_days, min_donors=1, is_night=None, interpolated=None, wanted=None,
-                 last_resort=False, local_linear=False):
+                 last_resort=False, local_linear=False, radiation_regressors=()):
     """Run the pass sequence on one series; return the output columns as arrays.
 
     ``all_conditions`` are (driver, tolerance) pairs of step 1 or ``None``;
@@ -825,7 +845,9 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
     ``last_resort`` runs the last-resort passes (module notes) on the gaps the
     sequence leaves: for a flux only, since a driver filled from another season
     would pass unseen into the modelled fluxes. ``local_linear`` moves the fills of
-    the similarity steps by :func:`local_linear_correction`.
+    the similarity steps by :func:`local_linear_correction`, those of step 2 also on
+    the (driver, tolerance) pairs ``radiation_regressors`` (Tair and VPD, which do not
+    choose its donors).
     """
     n = values.size
     measured = ~np.isnan(values)
@@ -856,7 +878,8 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
                               all_conditions, radiation_conditions, min_donors, course_donors,
                               last_resort=last_resort,
                               night_class=is_night is not None and not course_from_all,
-                              local_linear=local_linear)
+                              local_linear=local_linear,
+                              radiation_regressors=radiation_regressors)
         for filled, step, half_width_days, pass_mean, pass_count, pass_spread in outputs:
             value[filled] = pass_mean
             method[filled] = step
@@ -868,7 +891,7 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
 
 def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all_conditions,
                 radiation_conditions, min_donors, course_donors, last_resort=False,
-                night_class=False, local_linear=False):
+                night_class=False, local_linear=False, radiation_regressors=()):
     """Fill the gaps ``remaining`` from the records ``donors``; yield each pass's fills.
 
     With ``last_resort``, gaps the sequence leaves take the two last-resort passes
@@ -904,8 +927,10 @@ def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all
         else:
             conditions, usable, available, tables = step_inputs[step]
             gaps = np.flatnonzero(remaining & available)
-            result = _similar_conditions_pass(values, usable, gaps, half_width_days * per_day,
-                                              conditions, tables, local_linear)
+            result = _similar_conditions_pass(
+                values, usable, gaps, half_width_days * per_day, conditions, tables,
+                local_linear, radiation_regressors
+                if step == METHOD_RADIATION and half_width_days <= _REGRESSOR_DAYS else ())
         _take(outputs, remaining, gaps, step, half_width_days, result, min_donors)
         if not remaining.any():
             break
@@ -1211,7 +1236,8 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         all_conditions=all_conditions,
         radiation_conditions=radiation_conditions,
         max_window_days=max_window_days, min_donors=min_donors, is_night=night,
-        wanted=wanted, last_resort=True, local_linear=estimate == "local_linear")
+        wanted=wanted, last_resort=True, local_linear=estimate == "local_linear",
+        radiation_regressors=list(zip((tair, vpd), tolerances[1:], strict=True)))
     return _output_frame(index, *columns)
 
 

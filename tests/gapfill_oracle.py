@@ -74,8 +74,11 @@ def oracle_local_linear(picked, donor_drivers, gap_drivers, tolerances, donor_me
     slope records' scatter about their mean.
     """
     n, k = picked.size, len(donor_drivers)
-    centred = [(x - x.mean()) / tol for x, tol in zip(donor_drivers, tolerances, strict=True)]
-    offset = np.array([(g - m) / tol
+    # a driver missing (NaN) at a record counts at its records' mean, at the gap (or at
+    # every donor) as no offset
+    centred = [np.where(np.isnan(x), 0.0, x - np.nanmean(x)) / tol if (~np.isnan(x)).any()
+               else np.zeros(n) for x, tol in zip(donor_drivers, tolerances, strict=True)]
+    offset = np.array([0.0 if np.isnan(g - m) else (g - m) / tol
                        for m, g, tol in zip(donor_means, gap_drivers, tolerances, strict=True)])
     design = np.vstack([np.column_stack(centred), np.sqrt(ridge * n) * np.eye(k)])
     response = np.concatenate([picked - picked.mean(), np.zeros(k)])
@@ -89,7 +92,7 @@ def oracle_local_linear(picked, donor_drivers, gap_drivers, tolerances, donor_me
 
 def oracle_fill(values, per_day, hour_records, conditions, radiation_conditions,
                 max_window_days=140.0, min_donors=3, is_night=None, fixed=None,
-                local_linear=False):
+                local_linear=False, radiation_regressors=()):
     """Fill one series gap by gap; return value, method, window, count, std, quality arrays.
 
     ``conditions``: list of (driver array, tolerance) for step 1 or None;
@@ -98,7 +101,8 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_conditions,
     ``fixed``: bool per record of gaps already filled (interpolated) that stay as
     they are, method 4 and quality 4; ``local_linear``: steps 1 and 2 add
     :func:`oracle_local_linear` to the donors' mean, its slopes fitted on the records
-    within 3 tolerances of the gap.
+    within 3 tolerances of the gap; step 2 also on ``radiation_regressors`` ((driver,
+    tolerance) pairs that do not choose its donors).
     """
     y = np.asarray(values, dtype=float)
     n = y.size
@@ -161,10 +165,14 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_conditions,
                 full_width = 2.0 * k
                 shift = 0.0
                 if local_linear and picked.size:
+                    extra = list(radiation_regressors) if step == 2 and k <= 7 else []
+                    slope_drivers = [driver for driver, _ in pairs + extra]
+                    means = [np.nanmean(d[lo:hi][ok]) if (~np.isnan(d[lo:hi][ok])).any()
+                             else np.nan for d in slope_drivers]
                     shift = oracle_local_linear(
-                        y[lo:hi][wide], [driver[lo:hi][wide] for driver, _ in pairs],
-                        [driver[t] for driver, _ in pairs], at_gap,
-                        [driver[lo:hi][ok].mean() for driver, _ in pairs])
+                        y[lo:hi][wide], [d[lo:hi][wide] for d in slope_drivers],
+                        [d[t] for d in slope_drivers],
+                        at_gap + [tolerance for _, tolerance in extra], means)
             else:
                 candidates = (t + np.arange(-k, k + 1)[:, None] * per_day
                               + np.arange(-hour_records, hour_records + 1)[None, :]).ravel()
@@ -221,7 +229,8 @@ def oracle_fill_marginal(target, drivers, index, *, is_night=None, rg_tolerance=
     out = oracle_fill(target, per_day, hour_records, conditions, radiation,
                       max_window_days, min_donors,
                       None if is_night is None else np.asarray(is_night, dtype=bool),
-                      local_linear=estimate == "local_linear")
+                      local_linear=estimate == "local_linear",
+                      radiation_regressors=[(tair, tair_tolerance), (vpd, vpd_tolerance)])
     names = ("value", "method", "window_days", "count", "std", "quality")
     return pd.DataFrame(dict(zip(names, out, strict=True)), index=index)
 
