@@ -672,12 +672,15 @@ def censored_nee(nee, is_night, stamps=None, columns=None) -> str | None:
     is_night = np.asarray(is_night, dtype=bool)
     if nee.size != is_night.size or (stamps is not None and len(stamps) != nee.size):
         return None
-    bins = _zero_bins(nee, stamps)
     found = []
     for part, chosen, kept, lacking in (("by day", ~is_night, "below", "positive"),
                                         ("at night", is_night, "above", "negative")):
         times = None if stamps is None else pd.DatetimeIndex(stamps)[chosen]
-        run, near, first, last = _one_sided_run(nee[chosen], bins[chosen], times, lacking)
+        # each class's bins from its own random error: a month's night error can be a
+        # tenth of its day error (the error grows with the flux, Richardson et al. 2006
+        # (m)), and a bin from both together would be too wide for the nights
+        bins = _zero_bins(nee[chosen], times)
+        run, near, first, last = _one_sided_run(nee[chosen], bins, times, lacking)
         if run < _CENSOR_RUN:
             continue
         when = "" if first is None else f" ({first:%Y-%m-%d} .. {last:%Y-%m-%d})"
