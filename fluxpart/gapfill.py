@@ -1418,7 +1418,8 @@ def fill_frame(frame, *, target="nee", is_night=None, donors="separate_day_night
                rg_tolerance=_RG_TOLERANCE, tair_tolerance=_TAIR_TOLERANCE,
                vpd_tolerance=_VPD_TOLERANCE, max_window_days=_MAX_WINDOW_DAYS,
                min_donors=_MIN_DONORS,
-               interpolation_hours=_INTERPOLATION_HOURS) -> pd.DataFrame:
+               interpolation_hours=_INTERPOLATION_HOURS,
+               estimate="local_linear") -> pd.DataFrame:
     """Fill the drivers, then the flux column of a canonical frame.
 
     Parameters
@@ -1429,8 +1430,9 @@ def fill_frame(frame, *, target="nee", is_night=None, donors="separate_day_night
         and ``rg`` [W m-2], ``tair`` [°C], ``vpd`` [hPa], optionally ``tsoil`` [°C].
     target : str
         Name of the flux column; default ``"nee"`` [µmol m-2 s-1].
-    is_night, donors, min_donors
-        As in :func:`fill_marginal`.
+    is_night, donors, min_donors, estimate
+        As in :func:`fill_marginal` (``estimate="donor_mean"``: the donors' mean of
+        Reichstein et al. 2005).
     rg_tolerance, tair_tolerance, vpd_tolerance : float
         Similarity tolerances [W m-2], [°C], [hPa]; defaults 50, 2.5, 5 (Reichstein
         et al. 2005).
@@ -1462,7 +1464,8 @@ def fill_frame(frame, *, target="nee", is_night=None, donors="separate_day_night
     flux = fill_marginal(frame[target], driver_conditions(drivers), frame.index,
                          is_night=is_night, donors=donors, rg_tolerance=rg_tolerance,
                          tair_tolerance=tair_tolerance, vpd_tolerance=vpd_tolerance,
-                         max_window_days=max_window_days, min_donors=min_donors)
+                         max_window_days=max_window_days, min_donors=min_donors,
+                         estimate=estimate)
     flux.columns = [f"{target}_filled" if c == "value" else f"{target}_fill_{c}"
                     for c in flux.columns]
     return pd.concat([drivers, flux], axis=1)

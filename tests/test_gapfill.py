@@ -681,6 +681,13 @@ def test_fill_frame_composes_drivers_and_flux():
     np.testing.assert_array_equal(out["nee_fill_quality"], expected["quality"])
     assert {"nee_fill_method", "nee_fill_window_days", "nee_fill_count", "nee_fill_std",
             "rg_filled", "vpd_fill_quality"} <= set(out.columns)
+    # the published donors' mean (Reichstein et al. 2005) is open to fill_frame's users
+    # too: checked against the per-gap oracle of that mean (it could not be chosen there)
+    plain = fill_frame(frame, is_night=is_night, estimate="donor_mean")
+    oracle = oracle_fill_marginal(measured, driver_conditions(fill_drivers(frame)), index,
+                                  is_night=is_night, estimate="donor_mean")
+    np.testing.assert_allclose(plain["nee_filled"], oracle["value"], rtol=1e-9, atol=1e-12)
+    assert not np.array_equal(plain["nee_filled"], out["nee_filled"])
 
 
 # --------------------------------------------------------------------------- recovery
