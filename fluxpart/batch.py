@@ -1014,9 +1014,12 @@ def same_name_sites(outcomes) -> list[str]:
     them with other data by site name merges or overwrites. The site's key (the config's
     file stem) is not the name a published table shows. Names are compared as written in
     each manifest (``site.name``), after stripping spaces and ignoring case; sites of the
-    same input files are left to :func:`same_input_sites`.
+    same input files are left to :func:`same_input_sites`. Sites whose annual tables share
+    no year are left alone too: one tower's record split into configs per year or per
+    period (a new logger program, a changed set of columns) is one tower under one name,
+    its rows told apart by year.
     """
-    groups: dict[str, list[tuple[str, str, tuple]]] = {}
+    groups: dict[str, list[tuple[str, str, tuple, set | None]]] = {}
     for outcome in outcomes:
         if outcome.status == "failed":
             continue
@@ -1028,13 +1031,34 @@ def same_name_sites(outcomes) -> list[str]:
         name = (manifest.get("site") or {}).get("name") if isinstance(manifest, dict) else None
         if isinstance(name, str) and name.strip():
             groups.setdefault(" ".join(name.split()).casefold(), []).append(
-                (outcome.key, name, hashes))
-    return [f"sites {', '.join(repr(k) for k, _, _ in members)} carry the same [site] name "
+                (outcome.key, name, hashes, _years(outcome)))
+    return [f"sites {', '.join(repr(k) for k, _, _, _ in members)} carry the same [site] name "
             f"{members[0][1]!r} but were computed from different input files: the network "
             "tables hold one name for different towers; give each its own [site] name (and "
             "check its latitude and longitude)"
-            for members in groups.values()
-            if len(members) > 1 and len({h for _, _, h in members}) > 1]
+            for members in groups.values() if _same_years_other_inputs(members)]
+
+
+def _years(outcome) -> set | None:
+    """The years of an outcome's annual table, or None where it has none to read."""
+    annual = getattr(outcome, "annual", None)
+    if not isinstance(annual, pd.DataFrame) or annual.empty:
+        return None
+    try:
+        return {int(year) for year in annual.index}
+    except (TypeError, ValueError):
+        return None
+
+
+def _same_years_other_inputs(members) -> bool:
+    """Whether two of `members` (key, name, input hashes, years) come from different
+    inputs and share a year (or one's years are unknown)."""
+    for i, (_, _, hashes, years) in enumerate(members):
+        for _, _, other_hashes, other_years in members[i + 1:]:
+            if hashes != other_hashes and (years is None or other_years is None
+                                           or years & other_years):
+                return True
+    return False
 
 
 def _check_out(out: Path) -> None:

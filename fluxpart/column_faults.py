@@ -652,8 +652,9 @@ def censored_nee(nee, is_night, stamps=None, columns=None) -> str | None:
     values removed moved annual NEE by -98 g C m-2, from May to September alone by -42)
     or towards release at night (+11 g C m-2), and the stated random error, estimated
     from the kept records, cannot show it. Exact zeros are not counted (a zero written
-    for missing is named by the reader). Where a month's own random error (from its
-    successive differences) is smaller than that bound, its bin shrinks in proportion
+    for missing is named by the reader). Where a month's own random error (from the
+    successive differences of its day records for the day test, of its night records for
+    the night test) is smaller than that bound, its bin shrinks in proportion
     (:func:`_zero_bins`), so a flux a unit slip made small is not named for its shape. A
     file with NEE rounded to whole µmol m-2 s-1 holds no values in the bins and is not
     judged; a filter of a shorter season (three
@@ -672,12 +673,15 @@ def censored_nee(nee, is_night, stamps=None, columns=None) -> str | None:
     is_night = np.asarray(is_night, dtype=bool)
     if nee.size != is_night.size or (stamps is not None and len(stamps) != nee.size):
         return None
-    bins = _zero_bins(nee, stamps)
     found = []
     for part, chosen, kept, lacking in (("by day", ~is_night, "below", "positive"),
                                         ("at night", is_night, "above", "negative")):
         times = None if stamps is None else pd.DatetimeIndex(stamps)[chosen]
-        run, near, first, last = _one_sided_run(nee[chosen], bins[chosen], times, lacking)
+        # each class's bins from its own random error: a month's night error can be a
+        # tenth of its day error (the error grows with the flux, Richardson et al. 2006
+        # (m)), and a bin from both together would be too wide for the nights
+        bins = _zero_bins(nee[chosen], times)
+        run, near, first, last = _one_sided_run(nee[chosen], bins, times, lacking)
         if run < _CENSOR_RUN:
             continue
         when = "" if first is None else f" ({first:%Y-%m-%d} .. {last:%Y-%m-%d})"

@@ -169,9 +169,11 @@ class Config:
         ±`rg_tolerance` everywhere, the window of Reichstein et al. (2005).
     gapfill_estimate : str
         The fill of an NEE gap in the similarity steps. ``"local_linear"`` (default,
-        new in 0.21.0): the donors' mean moved by the flux's slope on Rg, Tair and
-        VPD (fitted on the same window's records within 3 tolerances of the gap)
-        times the donors' mean offset from the gap, shrunk by its reliability
+        new in 0.21.0): the donors' mean moved by the flux's slope on the step's
+        condition drivers (Rg, Tair and VPD; Rg alone in the radiation step; with the
+        clearness index where `gapfill_clearness_tolerance` is on), fitted on the same
+        window's records within 3 tolerances of the gap, times the donors' mean
+        offset from the gap, shrunk by its reliability
         (:func:`fluxpart.gapfill.local_linear_correction`). A mean of donors is
         biased where a gap sits at the edge of their conditions (gaps on the hottest
         afternoons, at the warm end of a spring fortnight); a local-linear estimate

@@ -562,6 +562,31 @@ def test_sites_of_different_inputs_under_one_name_are_warned_about(tmp_path):
     assert len(batch.same_input_sites(outcomes[2:])) == 1
 
 
+def test_one_tower_split_into_configs_per_year_is_not_warned_about(tmp_path):
+    """One tower's record in one config per year (a new logger program, other columns):
+    different inputs under one [site] name but no year in common, so the network
+    tables' rows of that name are told apart by year (a table keyed by site and year,
+    common practice). Warned before as 'one name for different towers', with the advice
+    to rename one year's config, which would split one tower into two sites."""
+    def folder(key, name, sha, years):
+        directory = tmp_path / key
+        directory.mkdir()
+        (directory / "manifest.json").write_text(json.dumps({
+            "site": {"name": name}, "provenance": {"input": {"path": "a.csv", "sha256": sha}}}))
+        annual = pd.DataFrame({"nee": [-100.0] * len(years)},
+                              index=pd.Index(years, name="year"))
+        return batch.SiteOutcome(key=key, config=f"{key}.toml", directory=str(directory),
+                                 status="written", annual=annual)
+
+    split = [folder("moor_2020", "Quillmoor east meadow", "aa", [2020]),
+             folder("moor_2021", "Quillmoor east meadow", "bb", [2021, 2022])]
+    assert batch.same_name_sites(split) == []
+    # a second tower under that name in a year the first holds is still named
+    clash = split + [folder("north", "Quillmoor east meadow", "cc", [2022])]
+    warnings = batch.same_name_sites(clash)
+    assert len(warnings) == 1 and "'north'" in warnings[0]
+
+
 # --------------------------------------------------------------------------- output folder
 
 

@@ -681,6 +681,13 @@ def test_fill_frame_composes_drivers_and_flux():
     np.testing.assert_array_equal(out["nee_fill_quality"], expected["quality"])
     assert {"nee_fill_method", "nee_fill_window_days", "nee_fill_count", "nee_fill_std",
             "rg_filled", "vpd_fill_quality"} <= set(out.columns)
+    # the published donors' mean (Reichstein et al. 2005) is open to fill_frame's users
+    # too: checked against the per-gap oracle of that mean (it could not be chosen there)
+    plain = fill_frame(frame, is_night=is_night, estimate="donor_mean")
+    oracle = oracle_fill_marginal(measured, driver_conditions(fill_drivers(frame)), index,
+                                  is_night=is_night, estimate="donor_mean")
+    np.testing.assert_allclose(plain["nee_filled"], oracle["value"], rtol=1e-9, atol=1e-12)
+    assert not np.array_equal(plain["nee_filled"], out["nee_filled"])
 
 
 # --------------------------------------------------------------------------- recovery
@@ -925,6 +932,50 @@ def test_local_linear_correction_of_an_exact_line():
     absurd = local_linear_correction(y - y.mean(), [np.r_[np.inf, x[1:]]], [np.array([0.8])],
                                      [1.0], np.array([0]), np.array([10]))
     assert absurd[0] == 0.0
+
+
+def test_positive_definite_solve_matches_numpy():
+    """The element-wise solve of the local-linear fit against numpy.linalg.solve (LAPACK,
+    a general-purpose library) on random symmetric positive definite systems of 1-4
+    unknowns, as the fit builds them (a Gram matrix plus a ridge)."""
+    from fluxpart.gapfill import _solve_positive_definite
+    rng = np.random.default_rng(5)
+    for k in (1, 2, 3, 4):
+        design = rng.normal(0.0, 1.0, (200, 12, k))
+        gram = np.einsum("nij,nik->njk", design, design) + 0.01 * 12 * np.eye(k)
+        right = rng.normal(0.0, 1.0, (200, k, 2))
+        np.testing.assert_allclose(_solve_positive_definite(gram, right),
+                                   np.linalg.solve(gram, right), rtol=1e-10, atol=1e-12)
+
+
+def test_local_linear_fills_are_the_same_bits_under_another_blas_kernel():
+    """An auditor's rerun on another CPU: the local-linear fills must not take the BLAS
+    kernel's path (under OpenBLAS's Prescott kernel a LAPACK solve moved 295 fills of the
+    example site in their last bit). Runs the same fill in two processes, the second with
+    OPENBLAS_CORETYPE=Prescott (honoured by NumPy's bundled OpenBLAS; elsewhere both runs
+    take one kernel and the check holds trivially)."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+    code = (
+        "import sys, numpy as np\n"
+        "sys.path.insert(0, sys.argv[1])\n"
+        "from test_gapfill import _synthetic, _night\n"
+        "from fluxpart.gapfill import fill_marginal\n"
+        "index, measured, drivers, _, _ = _synthetic(np.random.default_rng(4), 4000, 30)\n"
+        "out = fill_marginal(measured, drivers, index, is_night=_night(drivers))\n"
+        "sys.stdout.write(out['value'].to_numpy().tobytes().hex())\n")
+    tests = str(Path(__file__).resolve().parent)
+    outputs = []
+    for kernel in (None, "Prescott"):
+        env = {**os.environ, "OMP_NUM_THREADS": "1"}
+        env.pop("OPENBLAS_CORETYPE", None)
+        if kernel:
+            env["OPENBLAS_CORETYPE"] = kernel
+        outputs.append(subprocess.run([sys.executable, "-c", code, tests], env=env,
+                                      capture_output=True, text=True, check=True).stdout)
+    assert outputs[0] and outputs[0] == outputs[1]
 
 
 def test_unknown_gapfill_estimate_is_refused_naming_the_setting():
