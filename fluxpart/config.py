@@ -170,19 +170,20 @@ class Config:
     gapfill_estimate : str
         The fill of an NEE gap in the similarity steps. ``"local_linear"`` (default,
         new in 0.21.0): the donors' mean moved by the flux's slope on the step's
-        condition drivers (Rg, Tair and VPD; Rg alone in the radiation step; with the
-        clearness index where `gapfill_clearness_tolerance` is on), fitted on the same
-        window's records within 3 tolerances of the gap, times the donors' mean
-        offset from the gap, shrunk by its reliability
-        (:func:`fluxpart.gapfill.local_linear_correction`). A mean of donors is
-        biased where a gap sits at the edge of their conditions (gaps on the hottest
-        afternoons, at the warm end of a spring fortnight); a local-linear estimate
-        removes that first-order bias (Fan & Gijbels 1996 (m)). Measured on the 168
-        generated site-years of the three benchmarks: RMS annual NEE error 5.95 →
-        5.90, 8.62 → 8.56 and 9.52 → 9.13 g C m-2, more site-years better than
-        worse in each set (11 / 8, 12 / 10, 13 / 9 by more than 0.5 g C m-2); the
-        ninth trial's hot-afternoon gaps −35.1 → −26.5 g C m-2 a year.
-        ``"donor_mean"``: the donors' mean, as Reichstein et al. (2005).
+        condition drivers (Rg, Tair and VPD; Rg in the radiation step, plus Tair and
+        VPD as regressors within its ±7-day windows; with the clearness index where
+        `gapfill_clearness_tolerance` is on), fitted on the same window's records
+        within 3 tolerances of the gap, times the donors' mean offset from the gap,
+        shrunk by its reliability (:func:`fluxpart.gapfill.local_linear_correction`).
+        A mean of donors is biased where a gap sits at the edge of their conditions
+        (gaps on the hottest afternoons, a heat wave, the warm end of a spring
+        fortnight); a local-linear estimate removes that first-order bias (Fan &
+        Gijbels 1996 (m)). Measured on the 168 generated site-years of the three
+        benchmarks: RMS annual NEE error 5.95 → 5.94, 8.62 → 8.46 and 9.52 → 9.10 g C
+        m-2, mean signed error −0.41 → −0.27, −0.55 → −0.23, −1.06 → −0.73; the
+        ninth trial's site with an analyser failing on hot afternoons −35.1 / −21.8 →
+        −15.9 / −4.3 g C m-2 a year. ``"donor_mean"``: the donors' mean, as
+        Reichstein et al. (2005).
     gapfill_min_donors : int
         Fewest records a gap-filling pass must average to fill an NEE gap; 3, our
         choice: one record's random error or an undetected spike must not set a

@@ -905,6 +905,44 @@ def test_local_linear_fill_removes_the_bias_of_gaps_at_the_hot_edge():
     assert abs(bias["local_linear"]) < 0.3 * abs(bias["donor_mean"])
 
 
+def test_local_linear_fill_of_a_heat_wave_beyond_every_similar_donor():
+    """Afternoons of a heat wave hotter than any measured record within ±14 days.
+
+    Known truth (invented): day NEE = -8 + 0.4 (Tair - 20) [µmol m-2 s-1], Laplace noise
+    of scale 0.5; three days 9 K hotter than the weeks around them, whose day records are
+    all lost (an analyser that fails in heat). No record lies within ±2.5 K of those gaps, so the flow chart fills them
+    from records of similar Rg alone (Reichstein et al. 2005, appendix A), all cooler:
+    their mean is biased by the slope times about 9 K. Within ±7 days the local-linear
+    fill also regresses on Tair and VPD, which do not choose that step's donors, and
+    removes most of it (a first-order correction, Fan & Gijbels 1996 (m)).
+    """
+    rng = np.random.default_rng(5)
+    n = 48 * 60
+    index = _index(n, start="2021-06-01")
+    hour = np.arange(n) % 48 / 2.0
+    day_number = np.arange(n) // 48
+    day = (hour >= 6) & (hour < 19)
+    wave = (day_number >= 30) & (day_number < 33)
+    tair = (18.0 + 5.0 * np.sin(np.pi * (hour - 6.0) / 13.0).clip(0)
+            + rng.normal(0, 0.7, n) + np.where(wave, 9.0, 0.0))
+    rg = np.where(day, 500.0 + rng.uniform(-40.0, 40.0, n), 0.0)
+    vpd = np.full(n, 12.0)
+    truth = np.where(day, -8.0 + 0.4 * (tair - 20.0), 3.0)
+    lost = wave & day
+    measured = np.where(lost | (rng.random(n) < 0.1), np.nan,
+                        truth + rng.laplace(0.0, 0.5, n))
+    drivers = _drivers(n, rg=rg, tair=tair, vpd=vpd)
+    bias = {}
+    for estimate in ("donor_mean", "local_linear"):
+        filled = fill_marginal_module(measured, drivers, index, is_night=~day,
+                                      estimate=estimate)
+        radiation_step = lost & (filled["method"].to_numpy() == 2)
+        assert radiation_step.sum() > 0.5 * lost.sum()
+        bias[estimate] = (filled["value"].to_numpy() - truth)[radiation_step].mean()
+    assert bias["donor_mean"] < -2.0                      # the donors are 7-9 K cooler
+    assert abs(bias["local_linear"]) < 0.3 * abs(bias["donor_mean"])
+
+
 def test_local_linear_correction_of_an_exact_line():
     """Donors on an exact line: the correction is slope x offset, shrunk only by the ridge.
 
