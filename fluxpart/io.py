@@ -795,6 +795,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     header_rows = _header_rows_warning(parts)
     if header_rows:
         warnings.append(header_rows)
+    warnings.extend(_labelled_unit_warnings(parts, mapping, units))
     parts, absent, joined = _fill_lacking(parts, mapping, time_columns, warnings)
     combined = _combine(parts)
     if combined["completed_stamps"] and not joined:      # a join completes every stamp
@@ -2145,6 +2146,46 @@ def _header_rows_warning(parts: list) -> str | None:
             f"between input files: {'; '.join(differing)}. A unit changed during the record "
             "is read with one [input.units] for every file: convert the values of one unit "
             "in a copy of those files (where only the spelling differs, nothing is wrong)")
+
+
+#: A unit written at the end of a column name: "VPD [hPa]", "Tair (degC)", "Fc(umol/m2/s)".
+_NAME_UNIT = re.compile(r"[\[(]\s*([^\[\]()]+?)\s*[\])]\s*$")
+
+
+def _labelled_unit_warnings(parts: list, mapping: dict, units: dict) -> list:
+    """Warnings naming the columns whose file writes another unit than the one read.
+
+    A units line (``rows_after_header``) or a unit in brackets at the end of a column
+    name that spells a unit the reader knows for that variable, with another conversion
+    than the declared ``[input.units]`` (or, undeclared, the canonical unit): one of the
+    two is wrong. The value checks catch the mix-ups the values give away (kPa for hPa
+    against the humidity, °F); the others would be read without a word. Statistics
+    ("Avg", "Smp") and units the reader does not know are not judged.
+    """
+    notes = []
+    for name, column in mapping.items():
+        declared = units.get(name)
+        read_key = (same_unit_key(name, declared) if declared is not None
+                    else ("unit", (1.0, 0.0), False))
+        written = []
+        found = _NAME_UNIT.search(str(column))
+        if found:
+            written.append((found[1], "its name"))
+        for part in parts:
+            cells = part["header_rows"].get(name, (None, ()))[1]
+            written += [(cell, f"the units line of {part['source']!r}") for cell in cells if cell]
+        for cell, where in written:
+            key = same_unit_key(name, cell)
+            if key[0] == "unit" and key != read_key:
+                notes.append(
+                    f"column {str(column)!r} ({name}) is labelled {cell!r} by {where} but "
+                    f"read as {declared or units_for(name)[0]!r} "
+                    + (f"([input.units] {name} = {setting_text(declared)})" if declared
+                       else f"(no [input.units] {name}: its default)")
+                    + f": one of them is wrong; where the label is right, set [input.units] "
+                    f"{name} = {setting_text(unit_spelling(name, cell))}")
+                break
+    return notes
 
 
 def _utf8_hint(header: list, encoding: str) -> str:

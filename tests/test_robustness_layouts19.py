@@ -16,13 +16,14 @@ section 3.170 "Filename" (m)), and a drive letter ``C:`` names no folder there.
 import codecs
 import difflib
 import os
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
 import pytest
 
 from fluxpart.batch import read_sites_file
-from fluxpart.errors import ConfigError, InputFileError, MissingColumnError
+from fluxpart.errors import ConfigError, ImplausibleValueError, InputFileError, MissingColumnError
 from fluxpart.io import read_site_config, read_table
 
 MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
@@ -211,3 +212,95 @@ def test_a_network_file_listing_windows_paths_names_the_fix(tmp_path, written, e
         read_sites_file(tmp_path / "net.toml")
     (tmp_path / "net.toml").write_text('[batch]\nsites = ["sites/a.toml"]\n')
     assert [key for key, _ in read_sites_file(tmp_path / "net.toml").sites] == ["a"]
+
+
+EXAMPLE = Path(__file__).resolve().parents[1] / "examples"
+
+
+def _example(tmp_path, edit=None, units_line=None, toml_edit=None):
+    """The invented Quillmoor example (known truth), edited, with its config beside it."""
+    records = pd.read_csv(EXAMPLE / "quillmoor_grassland.csv", dtype=str, keep_default_na=False)
+    if edit is not None:
+        records = edit(records)
+    text = records.to_csv(index=False)
+    if units_line is not None:
+        head, rest = text.split("\n", 1)
+        text = head + "\n" + ",".join(units_line.get(c, "-") for c in records.columns) + "\n" + rest
+    (tmp_path / "quillmoor_grassland.csv").write_text(text)
+    config = (EXAMPLE / "quillmoor_grassland.toml").read_text()
+    (tmp_path / "site.toml").write_text(toml_edit(config) if toml_edit else config)
+    return read_site_config(tmp_path / "site.toml").read()
+
+
+def _scaled_rg(factor):
+    def edit(records):
+        rg = pd.to_numeric(records["solar_down"])
+        records["solar_down"] = np.where(rg == -9999, -9999, (rg * factor).round(1)).astype(str)
+        return records
+    return edit
+
+
+def test_rg_summed_over_each_record_is_not_called_ppfd(tmp_path):
+    """Rg written as the energy of each 30-minute record (J m-2 = W m-2 x 1800 s; SI:
+    1 W = 1 J s-1 (m)) and read as W m-2 was refused as "PPFD: map the column as ppfd",
+    a fix that reads it 860 times too bright. PPFD reaches about 2.7 times the potential
+    radiation (2.1 µmol J-1 x 1.3); a thousand times it is named as energy per record.
+    Rg in kJ m-2 per record (1.8 x W m-2) cannot be told from PPFD (2.1 x) by its values:
+    both are named, so the PPFD fix is not the only one offered."""
+    with pytest.raises(ImplausibleValueError) as joules:
+        _example(tmp_path, edit=_scaled_rg(1800))
+    message = str(joules.value)
+    assert "nor PPFD" in message and "map the column as ppfd" not in message
+    assert "J m-2: 1800 times W m-2 at 30 minutes" in message
+    with pytest.raises(ImplausibleValueError) as kilojoules:
+        _example(tmp_path, edit=_scaled_rg(1.8))
+    message = str(kilojoules.value)
+    assert "map the column as ppfd" in message
+    assert "kJ m-2 (1.8 times W m-2 at 30 minutes)" in message
+    # PPFD itself keeps its fix: mapped as ppfd it reads as Rg within 1 % (2.10 µmol J-1)
+    with pytest.raises(ImplausibleValueError, match="map the column as ppfd"):
+        _example(tmp_path, edit=_scaled_rg(2.1))
+    frame, _ = _example(tmp_path, edit=_scaled_rg(2.1), toml_edit=lambda text: text.replace(
+        'rg = "solar_down"', 'ppfd = "solar_down"'))
+    plain, _ = _example(tmp_path)
+    bright = plain["rg"] > 50
+    np.testing.assert_allclose(frame["rg"][bright], plain["rg"][bright], rtol=0.01)
+
+
+UNITS = {"stamp_end": "TS", "co2_exchange": "umol/m2/s", "solar_down": "W/m2",
+         "air_temp_c": "degC", "vpd_kpa": "kPa", "friction_velocity": "m/s",
+         "soil_temp_5cm": "degC", "rel_humidity": "%", "qc_co2": "-"}
+
+
+def test_a_unit_the_file_writes_against_the_unit_read_is_warned(tmp_path):
+    """The file labels a column with a unit the reader knows, and the config reads
+    another: one of the two is wrong, and where the values do not give it away (°C
+    values under a units line of degF, kPa values in a column named "VPD [hPa]" declared
+    kPa) the file was read without a word. Now warned, naming the column, both units and
+    the setting; labels that agree (other spellings of one unit: "umol/m2/s" for
+    µmol m-2 s-1, "W/m2", "degC", BIPM SI brochure (m)) give no warning, and the frame is
+    the plain file's either way."""
+    plain, _ = _example(tmp_path)
+    agreeing = lambda text: text.replace("[input]\n", "[input]\nrows_after_header = 1\n")  # noqa: E731
+    frame, report = _example(tmp_path, units_line=UNITS, toml_edit=agreeing)
+    pd.testing.assert_frame_equal(frame, plain)
+    assert report.warnings == ()
+    frame, report = _example(tmp_path, units_line={**UNITS, "air_temp_c": "degF"},
+                             toml_edit=agreeing)
+    pd.testing.assert_frame_equal(frame, plain)
+    assert len(report.warnings) == 1
+    assert ("column 'air_temp_c' (tair) is labelled 'degF' by the units line of"
+            in report.warnings[0])
+    assert "(no [input.units] tair: its default)" in report.warnings[0]
+    assert 'set [input.units] tair = "degF"' in report.warnings[0]
+    named = lambda text: text.replace('vpd = "vpd_kpa"', 'vpd = "VPD [hPa]"')  # noqa: E731
+    frame, report = _example(
+        tmp_path, edit=lambda r: r.rename(columns={"vpd_kpa": "VPD [hPa]"}), toml_edit=named)
+    pd.testing.assert_frame_equal(frame, plain)
+    assert len(report.warnings) == 1
+    assert ("column 'VPD [hPa]' (vpd) is labelled 'hPa' by its name but read as 'kPa' "
+            '([input.units] vpd = "kPa")') in report.warnings[0]
+    frame, report = _example(
+        tmp_path, edit=lambda r: r.rename(columns={"vpd_kpa": "VPD (kPa)"}),
+        toml_edit=lambda text: text.replace('vpd = "vpd_kpa"', 'vpd = "VPD (kPa)"'))
+    assert report.warnings == ()
