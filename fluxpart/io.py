@@ -2297,6 +2297,15 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                    "every file (in a copy); else " if free else "")
         other_stamps = _same_span_other_stamps(without, [part for part in parts if (
             name, column) not in part["lacking"]])
+        offset = _grid_offset(without, [part for part in parts if (
+            name, column) not in part["lacking"]]) if other_stamps else ""
+        if offset:
+            raise MissingColumnError(
+                f"{found}, which covers the same period {offset}: files of one period "
+                "holding different columns (a flux and a meteorological logger?) are joined "
+                "by stamp, which needs the same stamps in each; loggers that stamp their "
+                "records at other points of the interval (start, middle, end) take one "
+                "[input] time_marks for every file: shift that file's stamps in a copy")
         if other_stamps:
             raise MissingColumnError(
                 f"{found}, which covers the same period with stamps of its own "
@@ -2364,6 +2373,37 @@ def _same_span_other_stamps(without: list, having: list) -> str:
         if within >= 0.25 * len(stamps):
             step = float(np.median(np.diff(stamps.to_numpy())) / np.timedelta64(1, "m"))
             return f"every {step:g} minutes from {stamps.min()} in {part['source']!r}"
+    return ""
+
+
+def _grid_offset(without: list, having: list) -> str:
+    """Where a file of `without` has the record interval of the files of `having` but its
+    stamps sit a fixed part of it away from theirs (a meteorological logger stamping the
+    middle of each interval beside a flux logger stamping its end: 15 minutes at 30), e.g.
+    ``"with the same 30-minute records, its stamps 15 minutes before those of 'flux.csv'"``;
+    else ''. Judged by the offset of 90 % of its stamps or more (our choice) from the
+    others' grid."""
+    others = np.unique(np.concatenate([part["stamps"].to_numpy() for part in having]))
+    step = _median_step(others)
+    if not step:
+        return ""
+    for part in without:
+        own = _median_step(part["stamps"].to_numpy())
+        if own != step:
+            continue
+        stamps = np.unique(part["stamps"].to_numpy())
+        after = np.searchsorted(others, stamps, side="left").clip(0, len(others) - 1)
+        late = (others[after] - stamps) / np.timedelta64(1, "m")
+        late = late[(late > 0) & (late < step)]
+        if late.size < 0.9 * stamps.size:
+            continue
+        values, counts = np.unique(late, return_counts=True)
+        if counts.max() < 0.9 * stamps.size:
+            continue
+        before = float(values[counts.argmax()])
+        return (f"with the same {step:g}-minute records, its stamps {before:g} minutes "
+                f"before those of {_file_list([p['source'] for p in having])} (or "
+                f"{step - before:g} after)")
     return ""
 
 

@@ -304,3 +304,31 @@ def test_a_unit_the_file_writes_against_the_unit_read_is_warned(tmp_path):
         tmp_path, edit=lambda r: r.rename(columns={"vpd_kpa": "VPD (kPa)"}),
         toml_edit=lambda text: text.replace('vpd = "vpd_kpa"', 'vpd = "VPD (kPa)"'))
     assert report.warnings == ()
+
+
+@pytest.mark.parametrize("minutes, before, after", [(-15, 15, 15), (-10, 20, 10), (10, 10, 20)])
+def test_a_met_file_stamped_at_another_point_of_the_interval_is_named(tmp_path, minutes,
+                                                                      before, after):
+    """A flux logger stamping the end of each 30-minute record beside a meteorological
+    logger stamping its middle (15 minutes earlier; common practice differs between
+    logger programs): the same interval, no shared stamp. It was refused with "average
+    that file to the others' records", which cannot help; now the offset is named with
+    the one time_marks every file shares."""
+    starts, records = _tower()
+    flux = records[["stamp", "fc", "us"]]
+    met = records[["stamp", "sw", "ta", "vpd"]].copy()
+    met["stamp"] = (starts + pd.Timedelta(minutes=30 + minutes)).strftime("%Y-%m-%d %H:%M")
+    flux.to_csv(tmp_path / "flux.csv", index=False)
+    met.to_csv(tmp_path / "met.csv", index=False)
+    with pytest.raises(MissingColumnError) as refused:
+        _read([tmp_path / "flux.csv", tmp_path / "met.csv"])
+    message = str(refused.value)
+    assert (f"with the same 30-minute records, its stamps {before} minutes before those of "
+            f"'{tmp_path / 'met.csv'}' (or {after} after)") in message
+    assert "[input] time_marks for every file" in message
+    assert "average that file" not in message
+    # the same files on one grid are joined, the values as written (known truth)
+    met["stamp"] = records["stamp"]
+    met.to_csv(tmp_path / "met.csv", index=False)
+    frame, _ = _read([tmp_path / "flux.csv", tmp_path / "met.csv"])
+    np.testing.assert_array_equal(frame["rg"], records["sw"])
