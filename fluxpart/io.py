@@ -2169,7 +2169,8 @@ def _labelled_unit_warnings(parts: list, mapping: dict, units: dict) -> list:
                     else ("unit", (1.0, 0.0), False))
         written = []
         found = _NAME_UNIT.search(str(column))
-        if found:
+        if found and not found[1].isdigit():
+            # "RH (1)" numbers a sensor: a digit alone is no unit written in a name
             written.append((found[1], "its name"))
         for part in parts:
             cells = part["header_rows"].get(name, (None, ()))[1]

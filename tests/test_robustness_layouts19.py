@@ -304,6 +304,12 @@ def test_a_unit_the_file_writes_against_the_unit_read_is_warned(tmp_path):
         tmp_path, edit=lambda r: r.rename(columns={"vpd_kpa": "VPD (kPa)"}),
         toml_edit=lambda text: text.replace('vpd = "vpd_kpa"', 'vpd = "VPD (kPa)"'))
     assert report.warnings == ()
+    # a sensor's number in parentheses is no unit (RH's "1" would read as a fraction)
+    frame, report = _example(
+        tmp_path, edit=lambda r: r.rename(columns={"rel_humidity": "RH (1)"}),
+        toml_edit=lambda text: text.replace('rh = "rel_humidity"', 'rh = "RH (1)"'))
+    pd.testing.assert_frame_equal(frame, plain)
+    assert report.warnings == ()
 
 
 @pytest.mark.parametrize("minutes, before, after", [(-15, 15, 15), (-10, 20, 10), (10, 10, 20)])
