@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import os
 import re
 import tomllib
 from pathlib import Path
@@ -134,3 +135,24 @@ def refuse_binary(data: bytes, path) -> None:
         if data.startswith(signature):
             raise InputFileError(f"[input] path: {str(path)!r} is {kind}, not a text table; "
                                  f"{fix} and point [input] path at the text file")
+
+
+def other_system_path_hint(text: str) -> str:
+    """The fix for a path written in Windows form outside Windows, or "".
+
+    Outside Windows a backslash is a character of a file name, not a separator, and a
+    drive letter (``C:``) or a ``\\\\server`` share names no folder: such a path is looked
+    up as odd names and matches nothing. Starts with "; " (appended to a message).
+    """
+    text = str(text)
+    drive = text.startswith("\\\\") or any(
+        re.fullmatch(r"[A-Za-z]:", part) for part in re.split(r"[\\/]", text))
+    if os.sep == "\\" or ("\\" not in text and not drive):
+        return ""
+    slashes = ("write the path with forward slashes ('/'), which work on every system: a "
+               "backslash is part of the file name outside Windows")
+    mount = ("give the folder as this machine mounts it (a drive letter or \\\\server "
+             "share names no folder here), or relative to the file that lists it")
+    if not drive:
+        return f"; {slashes}"
+    return f"; {slashes}, and {mount}" if "\\" in text else f"; {mount}"

@@ -59,7 +59,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from ._validate import read_toml
+from ._validate import other_system_path_hint, read_toml
 from .config import Config, suggest_key
 from .errors import ConfigError, FluxpartError, FluxpartWarning, InputFileError, OutputError
 from .fingerprint import code_fingerprint
@@ -334,13 +334,15 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
                              and Path(p).resolve() != network and not _is_network_file(p))
             if not matches:
                 raise ConfigError(f"{where} matches no .toml file other than the network "
-                                  f"file itself (looked for {str(full)!r})")
+                                  f"file itself (looked for {str(full)!r})"
+                                  f"{other_system_path_hint(pattern)}")
         elif full.is_file() and full.resolve() == network:
             raise ConfigError(f"{where} is the network file itself, not a site config")
         elif full.is_file():
             matches = [full]
         else:
-            raise ConfigError(f"{where}: no such file {str(full)!r}")
+            raise ConfigError(f"{where}: no such file {str(full)!r}"
+                              f"{other_system_path_hint(pattern)}")
         for match in matches:
             resolved = match.resolve()
             if resolved not in seen:

@@ -47,7 +47,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from ._validate import read_toml, refuse_binary
+from ._validate import other_system_path_hint, read_toml, refuse_binary
 from .config import Config, setting_text, suggest_key
 from .errors import (
     ConfigError,
@@ -795,6 +795,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     header_rows = _header_rows_warning(parts)
     if header_rows:
         warnings.append(header_rows)
+    warnings.extend(_labelled_unit_warnings(parts, mapping, units))
     parts, absent, joined = _fill_lacking(parts, mapping, time_columns, warnings)
     combined = _combine(parts)
     if combined["completed_stamps"] and not joined:      # a join completes every stamp
@@ -1075,9 +1076,7 @@ def _resolve_paths(value, folder: Path) -> tuple:
                                  if Path(p).is_file())
             if not matches:
                 # a glob's backslash is part of a name outside Windows (as for one file)
-                slashes = ("; write the path with forward slashes ('/'), which work on every "
-                           "system: a backslash is part of the file name outside Windows"
-                           if "\\" in item else "")
+                slashes = other_system_path_hint(item)
                 raise ConfigError(f"[input] path = {setting_text(item)} matches no file in "
                                   f"{str(literal.parent)!r}{slashes}")
             configs = [p for p in matches if p.suffix.lower() == ".toml"]
@@ -1388,9 +1387,7 @@ def _require_input_file(path: Path) -> None:
         raise InputFileError(f"[input] path: input file {str(path)[:80]!r}... cannot be "
                              f"looked up: {error.strerror or error}") from None
     if not exists:
-        hint = ("; write the path with forward slashes ('/'), which work on every system: "
-                "a backslash is part of the file name outside Windows" if "\\" in str(path)
-                else _case_hint(path))
+        hint = other_system_path_hint(path) or _case_hint(path)
         raise InputFileError(f"[input] path: input file {str(path)!r} does not exist{hint}")
     if not path.is_file():
         raise InputFileError(f"[input] path: {str(path)!r} is not a file")
@@ -1441,8 +1438,13 @@ def _decompressed(data: bytes, path: Path) -> bytes:
     return data
 
 
-def _decode(path: Path, encoding) -> tuple[str, str]:
-    """Return the file's text and the encoding used (detected if `encoding` is None)."""
+def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
+    """Return the file's text and the encoding used (detected if `encoding` is None).
+
+    A block of zero bytes that ends the file (a logger's preallocated file, or a file
+    whose length was written before its data when the power failed) is dropped with a
+    warning in `warnings`, and so is a line it cut; zero bytes elsewhere are refused.
+    """
     _require_input_file(path)
     try:
         data = path.read_bytes()
@@ -1479,6 +1481,9 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
     # header line starting with U+FEFF then is not the header line it repeats)
     text = text.replace("\ufeff", "")
     nul = text.find("\x00")
+    if nul >= 0 and warnings is not None and not text[nul:].strip("\x00"):
+        text = _drop_zero_tail(path, text, nul, warnings)
+        nul = -1
     if nul >= 0 and text.count("\x00") >= len(text) / 4:
         raise InputFileError(f"input file {str(path)!r} is read as {encoding} but every other "
                              "byte is zero, as in UTF-16 text: set [input] encoding = "
@@ -1492,6 +1497,31 @@ def _decode(path: Path, encoding) -> tuple[str, str]:
             "cut short by a power failure or a damaged memory card leaves them; delete them, "
             "and the record they damaged, in a copy of the file")
     return text, ("utf-8" if encoding == "utf-8-sig" else encoding)
+
+
+def _drop_zero_tail(path: Path, text: str, nul: int, warnings: list) -> str:
+    """The text before a block of zero bytes that ends the file, and the line it cut.
+
+    Zero bytes fill the end of a file whose length reached the card before its data (a
+    power cut or a card pulled while the logger wrote) or that the logger preallocated:
+    the lines before them are whole, a line they begin inside is cut and dropped.
+    """
+    zeros = len(text) - nul
+    if not text[:nul].strip():
+        raise _EmptyFileError(
+            f"input file {str(path)!r} holds only zero bytes (NUL; {zeros}), a file created "
+            "but never written (a power cut or a card pulled while the logger wrote); "
+            "expected a header line and records", "holds only zero bytes")
+    start = max(text.rfind("\n", 0, nul), text.rfind("\r", 0, nul)) + 1
+    kept = text[:start]
+    line = kept.count("\n") + 1 if "\n" in kept else kept.count("\r") + 1
+    cut = text[start:nul].strip()
+    warnings.append(
+        f"input file {str(path)!r} ends in {zeros} zero bytes (NUL) from line {line} on "
+        "(a file preallocated by the logger, or its length written before its data when "
+        "the power failed)" + (f", which cut line {line} ({_shown_line(cut)!r}): that "
+                               "record was dropped" if cut else "") + "; read up to them")
+    return kept
 
 
 class _EmptyFileError(InputFileError):
@@ -2013,7 +2043,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
     instead of refused (one of several files).
     """
-    text, used_encoding = _decode(path, encoding)
+    text, used_encoding = _decode(path, encoding, warnings)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter, rows_before_header,
                                                      rows_after_header, warnings)
@@ -2122,6 +2152,47 @@ def _header_rows_warning(parts: list) -> str | None:
             f"between input files: {'; '.join(differing)}. A unit changed during the record "
             "is read with one [input.units] for every file: convert the values of one unit "
             "in a copy of those files (where only the spelling differs, nothing is wrong)")
+
+
+#: A unit written at the end of a column name: "VPD [hPa]", "Tair (degC)", "Fc(umol/m2/s)".
+_NAME_UNIT = re.compile(r"[\[(]\s*([^\[\]()]+?)\s*[\])]\s*$")
+
+
+def _labelled_unit_warnings(parts: list, mapping: dict, units: dict) -> list:
+    """Warnings naming the columns whose file writes another unit than the one read.
+
+    A units line (``rows_after_header``) or a unit in brackets at the end of a column
+    name that spells a unit the reader knows for that variable, with another conversion
+    than the declared ``[input.units]`` (or, undeclared, the canonical unit): one of the
+    two is wrong. The value checks catch the mix-ups the values give away (kPa for hPa
+    against the humidity, °F); the others would be read without a word. Statistics
+    ("Avg", "Smp") and units the reader does not know are not judged.
+    """
+    notes = []
+    for name, column in mapping.items():
+        declared = units.get(name)
+        read_key = (same_unit_key(name, declared) if declared is not None
+                    else ("unit", (1.0, 0.0), False))
+        written = []
+        found = _NAME_UNIT.search(str(column))
+        if found and not found[1].isdigit():
+            # "RH (1)" numbers a sensor: a digit alone is no unit written in a name
+            written.append((found[1], "its name"))
+        for part in parts:
+            cells = part["header_rows"].get(name, (None, ()))[1]
+            written += [(cell, f"the units line of {part['source']!r}") for cell in cells if cell]
+        for cell, where in written:
+            key = same_unit_key(name, cell)
+            if key[0] == "unit" and key != read_key:
+                notes.append(
+                    f"column {str(column)!r} ({name}) is labelled {cell!r} by {where} but "
+                    f"read as {declared or units_for(name)[0]!r} "
+                    + (f"([input.units] {name} = {setting_text(declared)})" if declared
+                       else f"(no [input.units] {name}: its default)")
+                    + f": one of them is wrong; where the label is right, set [input.units] "
+                    f"{name} = {setting_text(unit_spelling(name, cell))}")
+                break
+    return notes
 
 
 def _utf8_hint(header: list, encoding: str) -> str:
@@ -2233,6 +2304,15 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                    "every file (in a copy); else " if free else "")
         other_stamps = _same_span_other_stamps(without, [part for part in parts if (
             name, column) not in part["lacking"]])
+        offset = _grid_offset(without, [part for part in parts if (
+            name, column) not in part["lacking"]]) if other_stamps else ""
+        if offset:
+            raise MissingColumnError(
+                f"{found}, which covers the same period {offset}: files of one period "
+                "holding different columns (a flux and a meteorological logger?) are joined "
+                "by stamp, which needs the same stamps in each; loggers that stamp their "
+                "records at other points of the interval (start, middle, end) take one "
+                "[input] time_marks for every file: shift that file's stamps in a copy")
         if other_stamps:
             raise MissingColumnError(
                 f"{found}, which covers the same period with stamps of its own "
@@ -2300,6 +2380,37 @@ def _same_span_other_stamps(without: list, having: list) -> str:
         if within >= 0.25 * len(stamps):
             step = float(np.median(np.diff(stamps.to_numpy())) / np.timedelta64(1, "m"))
             return f"every {step:g} minutes from {stamps.min()} in {part['source']!r}"
+    return ""
+
+
+def _grid_offset(without: list, having: list) -> str:
+    """Where a file of `without` has the record interval of the files of `having` but its
+    stamps sit a fixed part of it away from theirs (a meteorological logger stamping the
+    middle of each interval beside a flux logger stamping its end: 15 minutes at 30), e.g.
+    ``"with the same 30-minute records, its stamps 15 minutes before those of 'flux.csv'"``;
+    else ''. Judged by the offset of 90 % of its stamps or more (our choice) from the
+    others' grid."""
+    others = np.unique(np.concatenate([part["stamps"].to_numpy() for part in having]))
+    step = _median_step(others)
+    if not step:
+        return ""
+    for part in without:
+        own = _median_step(part["stamps"].to_numpy())
+        if own != step:
+            continue
+        stamps = np.unique(part["stamps"].to_numpy())
+        after = np.searchsorted(others, stamps, side="left").clip(0, len(others) - 1)
+        late = (others[after] - stamps) / np.timedelta64(1, "m")
+        late = late[(late > 0) & (late < step)]
+        if late.size < 0.9 * stamps.size:
+            continue
+        values, counts = np.unique(late, return_counts=True)
+        if counts.max() < 0.9 * stamps.size:
+            continue
+        before = float(values[counts.argmax()])
+        return (f"with the same {step:g}-minute records, its stamps {before:g} minutes "
+                f"before those of {_file_list([p['source'] for p in having])} (or "
+                f"{step - before:g} after)")
     return ""
 
 
@@ -2572,6 +2683,17 @@ def _near(name: str, options: list, taken=()) -> str:
     """
     free = [str(o) for o in options if o not in taken]
     close = difflib.get_close_matches(name, free, n=1, cutoff=0.6)
+    if close:
+        # columns as near as the nearest (TS_1, TS_2, TS_3 for "TS": soil temperatures at
+        # several depths) are all named, in file order: the nearest alone was the last in
+        # alphabetical order, a choice the file does not make
+        def score(option):
+            return difflib.SequenceMatcher(None, name, option).ratio()
+        best = score(close[0])
+        tied = [o for o in free if score(o) == best]
+        if len(tied) > 1:
+            return (" (did you mean one of " + ", ".join(repr(o) for o in tied[:6])
+                    + "? as near as each other: map the one you mean)")
     if not close:
         stripped = [o for o in free if o.strip() == name.strip()]
         close = stripped[:1]
@@ -2591,6 +2713,14 @@ def _near(name: str, options: list, taken=()) -> str:
         return (f" (did you mean {close[0]!r}? they differ only in look-alike characters: "
                 f"the setting has {codes(name, close[0])} where the file has "
                 f"{codes(close[0], name)}; in TOML write \"{escaped}\")")
+    control = sorted({c for c in close[0] if 0x80 <= ord(c) <= 0x9F} - set(name))
+    if control:
+        # bytes 0x80-0x9F are cp1252's punctuation (an en dash, quotes, the euro sign, a
+        # bullet) and C1 control characters in latin-1: a cp1252 file read as latin-1
+        return (f" (did you mean {close[0]!r}? it holds the control character(s) "
+                + ", ".join(f"U+{ord(c):04X}" for c in control)
+                + ", which a cp1252 file's punctuation (– ‘ ’ “ ” € •) becomes when read as "
+                "latin-1: set [input] encoding = \"cp1252\")")
     return f" (did you mean {close[0]!r}?)"
 
 

@@ -735,6 +735,12 @@ def _declared_fahrenheit(name: str, converted: dict, columns: dict, interval_min
             "accept_units)")
 
 
+#: Largest ratio of PPFD [µmol m-2 s-1] to the potential radiation [W m-2] with the sun
+#: high: 2.1 µmol J-1 (``PPFD_PER_RG``) times 1.3, global radiation's brief cloud-edge
+#: enhancement above the potential (common practice).
+_PPFD_REACH = 2.1 * 1.3
+
+
 def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: int,
                 potential):
     """Rg in kW m-2 or in MJ m-2 per interval read as W m-2, or net radiation mapped as Rg."""
@@ -760,12 +766,26 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
         # about 0.75 (common practice). PPFD in µmol m-2 s-1 is about 2.1 times Rg in
         # W m-2 (fluxpart.variables.PPFD_PER_RG), so with the sun high it sits above it.
         if np.median(ratio) > 0.8 and np.percentile(ratio, 90) > 1.25:
-            return (f"column {columns['rg']!r} (rg, read as W m-2): with the sun high, half of "
-                    f"the values exceed {np.median(ratio):.2f} times the radiation at the top "
-                    "of the atmosphere and a tenth exceed "
-                    f"{np.percentile(ratio, 90):.2f} times it, which global radiation cannot; "
-                    "the values look like PPFD in µmol m-2 s-1: map the column as ppfd in "
-                    "[input.columns] instead of rg (or list rg in [input] accept_units)")
+            seconds = interval_minutes * 60.0
+            found = (f"column {columns['rg']!r} (rg, read as W m-2): with the sun high, half "
+                     f"of the values exceed {np.median(ratio):.2f} times the radiation at the "
+                     "top of the atmosphere and a tenth exceed "
+                     f"{np.percentile(ratio, 90):.2f} times it, which global radiation cannot")
+            # PPFD reaches about 2.1 x 1.3 = 2.7 times the potential radiation (cloud-edge
+            # enhancement, common practice); far beyond it the values are energy summed
+            # over each record (J m-2: the interval's seconds times W m-2)
+            if np.median(ratio) > 10.0 * _PPFD_REACH:
+                return (f"{found}, nor PPFD; the values look like an energy summed over each "
+                        f"record (J m-2: {seconds:.0f} times W m-2 at {interval_minutes} "
+                        "minutes), which is not read: write it as W m-2 (divided by "
+                        f"{seconds:.0f}) in a copy, or as MJ m-2 and set [input.units] rg = "
+                        "\"MJ m-2\" (or list rg in [input] accept_units)")
+            return (f"{found}; the values look like PPFD in µmol m-2 s-1: map the column as "
+                    "ppfd in [input.columns] instead of rg; or like an energy summed over each "
+                    f"record in kJ m-2 ({seconds / 1000.0:.2g} times W m-2 at "
+                    f"{interval_minutes} minutes), which is not read: write it as W m-2 "
+                    f"(divided by {seconds / 1000.0:.4g}) in a copy (or list rg in [input] "
+                    "accept_units)")
     # With the sun well up (potential radiation above 400 W m-2) even a thick overcast
     # passes 10 % or more of it (common practice), so a W m-2 record shows tens to
     # hundreds; kW m-2 or MJ m-2 per interval show numbers below about 5.
