@@ -34,6 +34,7 @@ from .variables import (
     PER_INTERVAL_UNITS,
     PPFD_PER_RG,
     READER_VARIABLES,
+    REQUIRED,
     reads_as_canonical,
     saturation_vapour_pressure,
     to_canonical,
@@ -1098,7 +1099,7 @@ def _frame_text(message: str, interval_minutes: int) -> str:
 
 
 def frame_refusal(frame, interval_minutes: int = 30, accept_units=()) -> str | None:
-    """The refusal of a caller's frame that most of a column or flag makes unusable.
+    """The refusal of a caller's frame that a required column or the flag makes unusable.
 
     Parameters
     ----------
@@ -1118,7 +1119,9 @@ def frame_refusal(frame, interval_minutes: int = 30, accept_units=()) -> str | N
     -----
     The reader refuses a column whose median lies outside its plausible range
     (:func:`implausible_message`: an air temperature in K, a flux 1000 times too
-    large). In a caller's frame the same column was screened out record by record and
+    large); here only the required variables (``nee``, ``rg``, ``tair``, ``vpd``,
+    ``ustar``) are refused, since a soil temperature or RH so written is left out of
+    its stage with a warning and the run goes on as before. In a caller's frame the same column was screened out record by record and
     the run stopped later on a symptom: an air temperature in K gave "nighttime
     partitioning (E0): no 15-day window has 6 measured night records spanning 5 K".
     The same happened to a ``nee_flag`` of the opposite convention (1 or True for a
@@ -1134,7 +1137,9 @@ def frame_refusal(frame, interval_minutes: int = 30, accept_units=()) -> str | N
     ecosystem exchange. Agricultural and Forest Meteorology, 107, 43-69 (m).
     """
     for name in frame.columns:
-        if name not in READER_VARIABLES or name == "nee_flag" or name in accept_units:
+        # the variables every stage needs; an optional one (tsoil, rh) so written is
+        # left out of its stage and stays a warning of frame_messages
+        if name not in REQUIRED or name in accept_units:
             continue
         values = frame[name].to_numpy(dtype=float)
         present = values[np.isfinite(values)]

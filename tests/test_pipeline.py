@@ -240,7 +240,7 @@ def test_a_frame_column_in_another_unit_or_a_flag_of_the_other_convention_is_ref
     partitioning (E0): no 15-day window has 6 measured night records"); one error now
     names the column and the conversion."""
     from fluxpart.errors import ImplausibleValueError
-    from fluxpart.unit_checks import frame_messages
+    from fluxpart.unit_checks import frame_messages, frame_refusal
     frame, _ = demo.site_year(seed=0)
     with pytest.raises(ImplausibleValueError, match="'tair'.*look like 'K'"):
         process(frame.assign(tair=frame["tair"] + 273.15), demo.site())
@@ -252,6 +252,10 @@ def test_a_frame_column_in_another_unit_or_a_flag_of_the_other_convention_is_ref
     harsh = frame.assign(nee_flag=(rng.random(len(frame)) < 0.7).astype(float))
     assert any("'nee_flag'" in text for text in frame_messages(harsh))
     assert not any("'nee_flag'" in text for text in frame_messages(frame))
+    # an optional column so written (soil temperature in K) is left out of its stage
+    # with a warning, as before: not refused; the demo frame itself is not refused
+    assert frame_refusal(frame.assign(tsoil=frame["tsoil"] + 273.15)) is None
+    assert frame_refusal(frame) is None
 
 
 def test_zoned_index_is_converted_and_extra_columns_ignored():
