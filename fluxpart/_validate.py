@@ -10,7 +10,14 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from .errors import ConfigError, FluxpartError, InputFileError, LengthMismatchError, TimestampError
+from .errors import (
+    ConfigError,
+    FluxpartError,
+    InputFileError,
+    LengthMismatchError,
+    MissingColumnError,
+    TimestampError,
+)
 
 
 def as_bool(values, name: str) -> np.ndarray:
@@ -22,6 +29,29 @@ def as_bool(values, name: str) -> np.ndarray:
                                 "missing values)")
         array = array.astype(bool)
     return array.copy()
+
+
+def unique_columns(columns) -> None:
+    """Refuse column labels given twice, naming them.
+
+    A frame built by ``pd.concat([frame, other], axis=1)`` or by joining two loggers'
+    tables can carry one label twice (two ``nee`` columns). Selecting it returns a table
+    rather than the one column every stage expects, and which of the two is meant is
+    for the caller to say: the first is no more right than the second (common
+    practice: pandas leaves such labels ambiguous, ``frame["nee"]`` returns both).
+
+    Raises
+    ------
+    MissingColumnError
+        If a label occurs more than once.
+    """
+    labels = pd.Index(columns)
+    twice = list(dict.fromkeys(labels[labels.duplicated()]))
+    if twice:
+        raise MissingColumnError(
+            f"column(s) {', '.join(repr(str(label)) for label in twice)} occur more than once "
+            "in the frame; keep one column per variable (e.g. frame.loc[:, "
+            "~frame.columns.duplicated()] keeps the first) or rename the other")
 
 
 def datetime_index(index) -> pd.DatetimeIndex:

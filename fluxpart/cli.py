@@ -318,6 +318,12 @@ def _command_check(args) -> int:
             problems.append(f"u* threshold: not detectable in {', '.join(map(str, fallback))}; "
                             f"the fixed ustar_threshold = {config.ustar_threshold:g} m s-1 "
                             "would be used there")
+        from .config import Config
+        from .ustar import unused_threshold_note
+        unused = unused_threshold_note(thresholds, config.ustar_threshold,
+                                       config.ustar_method, Config().ustar_threshold)
+        if unused:
+            problems.append(f"u* threshold: {unused}")
     print(format_check(site_config.site, report, table, problems=problems))
     print(_format_clock(verdict))
     if counts is not None:

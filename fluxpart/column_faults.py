@@ -27,7 +27,9 @@ physics the true columns must obey:
 * NEE with its values of one sign removed (:func:`censored_nee`): the random error puts
   values near zero flux on both sides of 0;
 * values of twice the interval written in two records (:func:`values_written_twice`):
-  averages of successive intervals differ.
+  averages of successive intervals differ;
+* a quality-flag or class column mapped as a measured variable
+  (:func:`flag_as_measurement`): a measured quantity takes many values over a month.
 
 Each returns a one-line message (the caller's warning) or None. They only warn: the
 physics leaves rare true records on the far side of each criterion (see each
@@ -49,7 +51,7 @@ from .uncertainty import gap_runs
 from .variables import vpd_from_rh
 
 __all__ = ["GAPLESS_DAYS", "SOIL_RANGE_RATIO", "censored_nee", "dew_point_as_tair",
-           "gapless_nee", "interpolated_nee", "months_rising_with_light", "nee_day_shift",
+           "flag_as_measurement", "gapless_nee", "interpolated_nee", "months_rising_with_light", "nee_day_shift",
            "nee_lag", "swapped_temperatures", "tair_lag", "values_written_twice",
            "zero_coded_temperature"]
 
@@ -1130,3 +1132,80 @@ def dew_point_as_tair(tair, rh, vpd, columns=None) -> str | None:
             f"{abs(identity - 1.0):.1%} (the identity e_s(dew point) = vapour pressure, over "
             f"{int(usable.sum())} records): map the air temperature as tair, or respiration "
             "and the light response read temperatures several K too low")
+
+
+#: Most distinct values a column mapped as a measured variable may hold, all whole
+#: numbers from 0 to :data:`_FLAG_HIGHEST`, before it is named as a flag [1]. Quality
+#: flag schemes of flux processing grade a record in three to five classes (0/1/2 of
+#: Mauder & Foken 2004 (m), 0-9 step schemes of Foken et al. 2004 (m)): common practice.
+_FLAG_MOST_VALUES = 5
+#: Largest value of a flag code [1] (single-digit codes; common practice, see above).
+_FLAG_HIGHEST = 9
+#: Present values needed to judge [records]: 30 days of half-hours, so a short record
+#: or a sensor logged at a coarse resolution for a few days is not judged.
+_FLAG_MIN_VALUES = 30 * 48 // 2
+
+
+def flag_as_measurement(values, name: str, columns=None) -> str | None:
+    """A message where a column mapped as a measured variable holds flag codes, or None.
+
+    Parameters
+    ----------
+    values : array_like
+        The column as read, in its canonical unit (u* [m s-1], temperatures [°C], VPD
+        [hPa], RH [%], Rg [W m-2], NEE [µmol m-2 s-1]).
+    name : str
+        Its canonical name.
+    columns : dict, optional
+        Canonical name -> file column, to name the column in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where the column takes more than five distinct values,
+        a negative value, values that are not whole multiples (0 to 9) of its smallest
+        positive value (a flag read in a declared unit, 0 and 10 hPa for a flag 0/1
+        under ``vpd = "kPa"``, is such a multiple), one value only (a stuck sensor,
+        named elsewhere), or fewer than 720 values are present.
+
+    Notes
+    -----
+    A measured u*, temperature, humidity, radiation or flux varies continuously: over
+    a month of records its values, at the resolution any logger writes (0.01 m s-1,
+    0.1 K, 1 W m-2), spread over tens to hundreds of distinct values with the weather's
+    daily and synoptic course. A column holding two to five distinct whole numbers
+    between 0 and 9 is a quality flag (the 0/1/2 classes of Mauder & Foken 2004 (m)),
+    a class or a count beside the measured column, mapped by a slip of the column
+    name: on the example site a u* flag (2 below 0.1 m s-1, 1 below 0.2, else 0)
+    mapped as ``ustar`` moved annual NEE by -79 g C m-2 and Reco by -247 g C m-2,
+    named only as a sensor "stuck" at 2. The rule is a warning, not a refusal: a
+    coarse sensor at a place whose value hardly changes (a frozen deep soil logged in
+    whole K) could in principle read so.
+
+    References
+    ----------
+    Mauder, M., & Foken, T. (2004). Documentation and instruction manual of the eddy
+    covariance software package TK2. Arbeitsergebnisse 26, Univ. Bayreuth (m).
+    Foken, T., et al. (2004). Post-field data quality control. In Handbook of
+    Micrometeorology, Kluwer, 181-208 (m).
+    """
+    values = np.asarray(values, dtype=float)
+    present = values[np.isfinite(values)]
+    if present.size < _FLAG_MIN_VALUES:
+        return None
+    distinct = np.unique(present)
+    if not 2 <= distinct.size <= _FLAG_MOST_VALUES or distinct[0] < 0:
+        return None
+    # codes read in a declared unit (a flag 0/1 under vpd = "kPa" reads 0 and 10 hPa)
+    # are whole multiples of the smallest positive one
+    step = distinct[distinct > 0][0]
+    codes = distinct / step
+    if not (np.allclose(codes, np.round(codes), rtol=0.0, atol=1e-9)
+            and codes[-1] <= _FLAG_HIGHEST):
+        return None
+    shown = ", ".join(f"{value:g}" for value in distinct)
+    column = (columns or {}).get(name, name)
+    return (f"column {column!r} ({name}) holds only the values {shown} in its "
+            f"{present.size} values: a quality flag, class or count, not a measured {name}, "
+            "which takes many values over a month; map the measured column as "
+            f"{name} (a flag belongs under nee_flag)")

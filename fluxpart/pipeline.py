@@ -53,11 +53,13 @@ from . import (
     ustar,
     ustar_seasonal,
 )
+from ._validate import unique_columns
 from .config import Config
 from .errors import (
     ConfigError,
     FluxpartError,
     FluxpartWarning,
+    ImplausibleValueError,
     InputFileError,
     InsufficientDataError,
     MissingColumnError,
@@ -112,6 +114,7 @@ def _require_columns(frame: pd.DataFrame) -> None:
         raise MissingColumnError(f"the frame's column labels have {frame.columns.nlevels} "
                                  "levels; give one level of canonical names (nee, rg, ...), "
                                  "e.g. with frame.droplevel(1, axis=1)")
+    unique_columns([column for column in frame.columns if column in VARIABLES])
     missing = [name for name in REQUIRED if name not in frame.columns]
     if missing == ["vpd"] and "rh" in frame.columns:
         raise MissingColumnError("column 'vpd' is missing; derive it from 'rh' and 'tair' with "
@@ -657,6 +660,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     screened = screens.screened
     if "reader" not in (provenance or {}):      # a caller's frame: no reader checked its units
+        refusal = unit_checks.frame_refusal(frame, interval, accept_units=accepted)
+        if refusal:
+            raise ImplausibleValueError(f"input: {refusal}")
         warnings.extend(f"input: {text}" for text in unit_checks.frame_messages(
             frame, geometry["potential_radiation"].to_numpy(), interval, accept_units=accepted))
     verdict, findings = _clock_and_preflight(frame, site, config, interval, geometry, is_night,
@@ -673,6 +679,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         frame, screened, is_night, site, config)
     step("u* threshold")
     warnings.extend(ustar.source_notes(ustar_table, config.ustar_threshold))
+    unused = ustar.unused_threshold_note(ustar_table, config.ustar_threshold,
+                                         config.ustar_method, Config().ustar_threshold)
+    warnings.extend([unused] if unused else [])
 
     filled_drivers = gapfill.fill_drivers(
         screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days,

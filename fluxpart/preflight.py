@@ -84,6 +84,7 @@ import pandas as pd
 from .column_faults import (
     censored_nee,
     dew_point_as_tair,
+    flag_as_measurement,
     gapless_nee,
     interpolated_nee,
     months_rising_with_light,
@@ -414,6 +415,19 @@ def _written_twice(frame: pd.DataFrame, potential, interval_minutes: float,
                                     names)
         if text:
             findings.append(Finding(f"input ({name} twice)", text, False))
+    return findings
+
+
+def _flags_as_data(frame: pd.DataFrame, sources=None) -> list:
+    """Columns mapped as measured variables that hold a few whole-number codes
+    (:func:`.column_faults.flag_as_measurement`)."""
+    names = {**{name: name for name in frame.columns}, **(sources or {})}
+    findings = []
+    for name in ("nee", "rg", "tair", "vpd", "rh", "tsoil", "ustar", "ppfd"):
+        if name in frame.columns:
+            text = flag_as_measurement(frame[name].to_numpy(dtype=float), name, names)
+            if text:
+                findings.append(Finding(f"input ({name} flag)", text, False))
     return findings
 
 
@@ -827,7 +841,11 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     if len(index) == 0:
         return [Finding("whole record", "no records", True)]
     if not findings:                     # a wholly constant column is named above
-        findings += _stuck(frame, potential, interval_minutes)
+        flags = _flags_as_data(frame, sources)
+        named = {finding.stage for finding in flags}
+        findings += flags            # a flag's runs of one code are not a stuck sensor
+        findings += [finding for finding in _stuck(frame, potential, interval_minutes)
+                     if f"{finding.stage[:-1]} flag)" not in named]
         findings += _written_twice(frame, potential, interval_minutes, sources)
         repeated = _repeated_records(frame, interval_minutes)
         findings += repeated or _repeated_nee(frame, interval_minutes)

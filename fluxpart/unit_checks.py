@@ -34,6 +34,7 @@ from .variables import (
     PER_INTERVAL_UNITS,
     PPFD_PER_RG,
     READER_VARIABLES,
+    REQUIRED,
     reads_as_canonical,
     saturation_vapour_pressure,
     to_canonical,
@@ -44,6 +45,7 @@ __all__ = [
     "IMPLAUSIBLE_SHARE",
     "MIN_DAYS_FOR_UNIT_CHECKS",
     "frame_messages",
+    "frame_refusal",
     "implausible_message",
     "mixup_messages",
 ]
@@ -1018,6 +1020,39 @@ _ACCEPT_CLAUSES = (re.compile(r' ?\(or list \w+ in \[input\] accept_units[^)]*\)
                    re.compile(r'; or list \w+ in \[input\] accept_units'))
 
 
+#: Share of a frame's judged records that ``nee_flag`` may reject before the flag is
+#: named as of the opposite meaning. The reader's rule for ``[input] flag_accept``
+#: (:mod:`fluxpart.io`): a flag that rejects most records is more likely written with
+#: the other convention (1 or True = good) than a site whose own checks discard most
+#: of its data, where towers keep about 65 % of their records in all (Falge et al.
+#: 2001 (m)). Our choice: half.
+_FLAG_REJECTS_MOST = 0.5
+#: Share beyond which the flag is refused (:func:`frame_refusal`): our choice.
+_FLAG_REFUSE = 0.95
+
+
+def _flag_rejects_most(frame, share: float) -> str | None:
+    """The warning where a frame's ``nee_flag`` (non-zero = reject) rejects most records.
+
+    References
+    ----------
+    Falge, E., et al. (2001). Gap filling strategies for defensible annual sums of net
+    ecosystem exchange. Agricultural and Forest Meteorology, 107, 43-69 (m).
+    """
+    if "nee_flag" not in frame.columns:
+        return None
+    values = np.asarray(frame["nee_flag"], dtype=float)
+    judged = np.isfinite(values)
+    rejected = judged & (values != 0.0)
+    if judged.sum() < 48 or rejected.sum() <= share * judged.sum():
+        return None
+    held = ", ".join(f"{value:g}" for value in np.unique(values[judged])[:10])
+    return (f"column 'nee_flag': {int(rejected.sum())} of {int(judged.sum())} records "
+            f"({rejected.sum() / judged.sum():.1%}) are rejected, as process() keeps a record "
+            f"only where nee_flag is 0 (or missing); the flags hold {held}: where 1 (or True) "
+            "means a good record, pass (frame[\"nee_flag\"] == 0) instead")
+
+
 def frame_messages(frame, potential=None, interval_minutes: int = 30,
                    accept_units=()) -> list:
     """Unit mix-ups in a caller's frame of canonical columns, as warnings.
@@ -1056,20 +1091,82 @@ def frame_messages(frame, potential=None, interval_minutes: int = 30,
         found.append("column 'rh' (rh, read as %): all values are at most 1.05 %, which no "
                      "surface air stays below; it looks like a fraction: set [input.units] "
                      "rh = \"fraction\"")
+    flag = _flag_rejects_most(frame, _FLAG_REJECTS_MOST)
+    if flag:
+        found.append(flag)
     refusals, suspicions = mixup_messages(converted, {}, {name: name for name in converted},
                                           interval_minutes, potential, (), frame.index)
     lines = []
     kept = [message for name, message in refusals.items() if name not in accept_units]
     for message in [*found, *kept, *suspicions]:
-        message = _UNIT_SETTING.sub(
-            lambda m: (f"convert the column from \"{m[2]}\" to {READER_VARIABLES[m[1]].unit} "
-                       f"(fluxpart.variables.to_canonical(values, {m[1]!r}, \"{m[2]}\""
-                       + (f", interval_minutes={interval_minutes}"
-                          if (m[1], m[2]) in PER_INTERVAL_UNITS else "") + "))"),
-            message)
-        message = _OTHER_UNIT.sub(lambda m: f'or from "{m[2]}"', message)
-        for clause in _ACCEPT_CLAUSES:
-            message = clause.sub("", message)
-        lines.append("frame (process() takes canonical units): "
-                     + message.replace("the file", "the frame"))
+        lines.append(_frame_text(message, interval_minutes))
     return lines
+
+
+def _frame_text(message: str, interval_minutes: int) -> str:
+    """A reader's message about a column, worded for a caller's frame (the conversion
+    to call in place of the ``[input.units]`` setting)."""
+    message = _UNIT_SETTING.sub(
+        lambda m: (f"convert the column from \"{m[2]}\" to {READER_VARIABLES[m[1]].unit} "
+                   f"(fluxpart.variables.to_canonical(values, {m[1]!r}, \"{m[2]}\""
+                   + (f", interval_minutes={interval_minutes}"
+                      if (m[1], m[2]) in PER_INTERVAL_UNITS else "") + "))"),
+        message)
+    message = _OTHER_UNIT.sub(lambda m: f'or from "{m[2]}"', message)
+    for clause in _ACCEPT_CLAUSES:
+        message = clause.sub("", message)
+    return "frame (process() takes canonical units): " + message.replace("the file", "the frame")
+
+
+def frame_refusal(frame, interval_minutes: int = 30, accept_units=()) -> str | None:
+    """The refusal of a caller's frame that a required column or the flag makes unusable.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Canonical columns (float) on a DatetimeIndex of interval starts.
+    interval_minutes : int, optional
+        Record interval [minutes].
+    accept_units : sequence of str, optional
+        Variables a site config's ``[input] accept_units`` kept as they are.
+
+    Returns
+    -------
+    str or None
+        One line naming the first such column and its likely cause; None otherwise.
+
+    Notes
+    -----
+    The reader refuses a column whose median lies outside its plausible range
+    (:func:`implausible_message`: an air temperature in K, a flux 1000 times too
+    large); here only the required variables (``nee``, ``rg``, ``tair``, ``vpd``,
+    ``ustar``) are refused, since a soil temperature or RH so written is left out of
+    its stage with a warning and the run goes on as before. In a caller's frame the same column was screened out record by record and
+    the run stopped later on a symptom: an air temperature in K gave "nighttime
+    partitioning (E0): no 15-day window has 6 measured night records spanning 5 K".
+    The same happened to a ``nee_flag`` of the opposite convention (1 or True for a
+    good record), which rejected 99.9 % of the example's records: a flag rejecting
+    more than :data:`_FLAG_REFUSE` of them is refused here, naming the convention
+    (beyond half, :func:`frame_messages` warns). Our choice; towers keep about 65 %
+    of their records (Falge et al. 2001 (m)), so a site whose own checks reject 95 %
+    has no budget to give.
+
+    References
+    ----------
+    Falge, E., et al. (2001). Gap filling strategies for defensible annual sums of net
+    ecosystem exchange. Agricultural and Forest Meteorology, 107, 43-69 (m).
+    """
+    for name in frame.columns:
+        # the variables every stage needs; an optional one (tsoil, rh) so written is
+        # left out of its stage and stays a warning of frame_messages
+        if name not in REQUIRED or name in accept_units:
+            continue
+        values = frame[name].to_numpy(dtype=float)
+        present = values[np.isfinite(values)]
+        if present.size < 48 or not _outside(name, np.array([float(np.median(present))]))[0]:
+            continue
+        message = implausible_message(name, values, values, None, name, (), interval_minutes)
+        if message:
+            return _frame_text(message, interval_minutes)
+    flag = _flag_rejects_most(frame, _FLAG_REFUSE)
+    return f"frame: {flag}" if flag else None

@@ -54,6 +54,7 @@ __all__ = [
     "moving_point_threshold",
     "nearest_detected_year",
     "source_notes",
+    "unused_threshold_note",
 ]
 
 #: Season names in table order.
@@ -660,6 +661,60 @@ def nearest_detected_year(thresholds: pd.Series) -> dict:
         distance = np.abs(donors - year)
         out[int(year)] = int(donors[np.flatnonzero(distance == distance.min())[0]])
     return out
+
+
+def unused_threshold_note(table: pd.DataFrame, fixed_threshold: float, method: str,
+                          default: float) -> str | None:
+    """A warning where a fixed u* threshold was set but no year used it, or None.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        The run's u* table (``ustar.parquet``): ``year``, ``period``, ``threshold``
+        [m s-1] and ``source``.
+    fixed_threshold : float
+        ``Config.ustar_threshold`` [m s-1] as set.
+    method : str
+        ``Config.ustar_method``.
+    default : float
+        The default of ``Config.ustar_threshold`` [m s-1].
+
+    Returns
+    -------
+    str or None
+        The text where `fixed_threshold` differs from `default`, `method` detects the
+        threshold and every year's threshold came from the data (no ``"fallback"``
+        row); None otherwise.
+
+    Notes
+    -----
+    With a detecting method the fixed threshold is only the fall-back of a year whose
+    records show none. A value written in ``[processing]`` without ``ustar_method =
+    "fixed"`` is read as "filter at this u*" by whoever wrote it, yet the run filters at
+    the detected thresholds: on the example site ``ustar_threshold = 0.3`` gave the
+    same sums as the default (0.156 m s-1 detected) without a word. Where the detected
+    and written values differ, the night records kept differ, and Reco with them (Papale
+    et al. 2006 (m): the u* filter is the largest single choice in night-time NEE).
+    Where a year did fall back, :func:`source_notes` names it.
+
+    References
+    ----------
+    Papale, D., et al. (2006). Towards a standardized processing of Net Ecosystem
+    Exchange measured with eddy covariance technique: algorithms and uncertainty
+    estimation. Biogeosciences, 3, 571-583 (m).
+    """
+    if method == "fixed" or fixed_threshold == default or not len(table):
+        return None
+    if (table["source"] == "fallback").any():
+        return None
+    annual = table[table["period"] == "year"] if "period" in table.columns else table
+    used = ", ".join(f"{year}: {threshold:.3f}" for year, threshold in zip(
+        annual["year"], annual["threshold"], strict=True))
+    return (f"[processing] ustar_threshold = {fixed_threshold:g} m s-1 was not used: with "
+            f"ustar_method = \"{method}\" it is only the fall-back for a year whose records "
+            f"show no threshold, and every year showed one ({used} m s-1); to filter at "
+            f"{fixed_threshold:g} m s-1, set ustar_method = \"fixed\", or remove the "
+            "setting")
 
 
 def source_notes(table: pd.DataFrame, fixed_threshold: float) -> list:

@@ -19,6 +19,7 @@ from fluxpart.column_faults import (
     SOIL_RANGE_RATIO,
     censored_nee,
     dew_point_as_tair,
+    flag_as_measurement,
     gapless_nee,
     interpolated_nee,
     months_rising_with_light,
@@ -29,7 +30,7 @@ from fluxpart.column_faults import (
     values_written_twice,
     zero_coded_temperature,
 )
-from fluxpart.preflight import _column_faults, _written_twice
+from fluxpart.preflight import _column_faults, _flags_as_data, _written_twice
 from fluxpart.variables import vpd_from_rh
 
 STEP = 30
@@ -561,3 +562,39 @@ def test_quiet_nights_beside_noisy_days_are_not_named():
                        -2.0 + rng.laplace(0.0, 1.0, night.size))
         nee[rng.random(night.size) < 0.4] = np.nan
         assert censored_nee(nee, night, stamps) is None
+
+
+def test_quality_flag_mapped_as_a_measured_variable_is_named():
+    # a flag of the 0/1/2 classes (Mauder & Foken 2004 (m)) graded from u* itself, mapped
+    # as ustar by a slip of the column name: three values where a measured u* takes many
+    rng = np.random.default_rng(5)
+    ustar = np.round(rng.gamma(4.0, 0.08, 90 * PER_DAY), 3)
+    flag = np.where(ustar < 0.1, 2.0, np.where(ustar < 0.2, 1.0, 0.0))
+    text = flag_as_measurement(flag, "ustar", columns={"ustar": "qc_ustar"})
+    assert text is not None and "'qc_ustar'" in text and "0, 1, 2" in text
+    # the same flag read under a declared unit (kPa -> hPa: 0 and 10) is still a flag
+    assert flag_as_measurement(flag * 10.0, "vpd") is not None
+    # through the preflight: the flag is named, not the runs of one code as a stuck sensor
+    frame = pd.DataFrame({"ustar": flag, "tair": np.linspace(0.0, 20.0, flag.size)},
+                         index=pd.date_range("2021-04-01", periods=flag.size, freq="30min"))
+    stages = [finding.stage for finding in _flags_as_data(frame, {"ustar": "qc_ustar"})]
+    assert stages == ["input (ustar flag)"]
+
+
+def test_measured_columns_are_not_named_as_flags():
+    # a measured u*, air temperature and RH at the resolution loggers write (common
+    # practice: 0.001 m s-1, 0.01 K, 0.1 %) take far more than five values in a month
+    rng = np.random.default_rng(6)
+    n = 31 * PER_DAY
+    hours = np.arange(n) % PER_DAY * STEP / 60.0
+    air = np.round(8.0 + 6.0 * np.sin(np.pi * (hours - 8.0) / 12.0) + rng.normal(0, 1, n), 2)
+    for values, name in ((np.round(rng.gamma(4.0, 0.08, n), 3), "ustar"), (air, "tair"),
+                         (np.round(np.clip(rng.normal(70, 15, n), 5, 100), 1), "rh")):
+        assert flag_as_measurement(values, name) is None
+    # a stuck sensor (one value) is left to the stuck-sensor rule; a short record and a
+    # column with a negative value are not judged
+    assert flag_as_measurement(np.full(n, 2.0), "ustar") is None
+    assert flag_as_measurement(np.tile([0.0, 1.0, 2.0], 100), "ustar") is None
+    assert flag_as_measurement(np.tile([-1.0, 0.0, 1.0], n // 3), "tsoil") is None
+    # a temperature logged in whole K that spans more than five values is measured
+    assert flag_as_measurement(np.round(air), "tair") is None

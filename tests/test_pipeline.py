@@ -220,6 +220,44 @@ def test_bad_frames_are_rejected_with_the_column_or_row_named():
         process(frame.assign(vpd=np.nan), demo.site())
 
 
+def test_a_variable_given_twice_in_the_frame_is_named():
+    """A frame joined with pd.concat(axis=1) can carry 'nee' twice: pandas returns both
+    columns for frame["nee"] (common practice), so the run stopped in an AttributeError
+    ("'DataFrame' object has no attribute 'dtype'"); now one error names the column.
+    A non-canonical column given twice is still left out with a warning."""
+    frame, _ = demo.site_year(seed=0)
+    with pytest.raises(MissingColumnError, match="'nee' occur more than once"):
+        process(pd.concat([frame, frame[["nee"]]], axis=1), demo.site())
+    extra = pd.concat([frame, pd.DataFrame({"wind": 2.0}, index=frame.index)] * 1
+                      + [pd.DataFrame({"wind": 3.0}, index=frame.index)], axis=1)
+    with pytest.raises(MissingColumnError, match="'ustar'"):     # not about 'wind'
+        process(extra.drop(columns="ustar"), demo.site())
+
+
+def test_a_frame_column_in_another_unit_or_a_flag_of_the_other_convention_is_refused():
+    """An air temperature in K (T[K] = T[°C] + 273.15, SI) and a nee_flag where 1 means
+    good (every good record rejected) stopped the run on a symptom ("nighttime
+    partitioning (E0): no 15-day window has 6 measured night records"); one error now
+    names the column and the conversion."""
+    from fluxpart.errors import ImplausibleValueError
+    from fluxpart.unit_checks import frame_messages, frame_refusal
+    frame, _ = demo.site_year(seed=0)
+    with pytest.raises(ImplausibleValueError, match="'tair'.*look like 'K'"):
+        process(frame.assign(tair=frame["tair"] + 273.15), demo.site())
+    with pytest.raises(ImplausibleValueError, match="'nee_flag'.*nee_flag\"\\] == 0"):
+        process(frame.assign(nee_flag=frame["nee_flag"] == 0), demo.site())
+    # a flag rejecting more than half but not nearly all (the reader's rule for
+    # flag_accept) is a warning; the demo's own flag (0.1 % rejected) is quiet
+    rng = np.random.default_rng(2)
+    harsh = frame.assign(nee_flag=(rng.random(len(frame)) < 0.7).astype(float))
+    assert any("'nee_flag'" in text for text in frame_messages(harsh))
+    assert not any("'nee_flag'" in text for text in frame_messages(frame))
+    # an optional column so written (soil temperature in K) is left out of its stage
+    # with a warning, as before: not refused; the demo frame itself is not refused
+    assert frame_refusal(frame.assign(tsoil=frame["tsoil"] + 273.15)) is None
+    assert frame_refusal(frame) is None
+
+
 def test_zoned_index_is_converted_and_extra_columns_ignored():
     """Issue 15: a tz-aware index is converted with Site.utc_offset; an extra column is
     ignored; both are noted in the warnings and issued as FluxpartWarning."""

@@ -547,3 +547,21 @@ def test_pooled_year_threshold_reaches_the_table_and_warnings():
     text = ustar.source_notes(table, config.ustar_threshold)
     assert len(text) == 1 and "pooled as one season" in text[0]
     assert "fixed ustar_threshold" not in text[0]
+
+
+def test_a_fixed_threshold_that_no_year_used_is_named():
+    # with a detecting method, Config.ustar_threshold is only the fall-back of a year
+    # without a threshold of its own (Config docstring); one written with no "fixed"
+    # method and every year detected was silently ignored before
+    from fluxpart.config import Config
+    default = Config().ustar_threshold
+    table = pd.DataFrame({"year": [2021, 2021], "period": ["year", "summer"],
+                          "threshold": [0.156, 0.168], "source": ["detected", "detected"]})
+    text = ustar.unused_threshold_note(table, 0.3, "moving_point", default)
+    assert text is not None and "ustar_threshold = 0.3" in text and "2021: 0.156" in text
+    assert "summer" not in text and 'ustar_method = "fixed"' in text
+    # the default, a fixed method, or a year that did fall back on it: nothing to name
+    assert ustar.unused_threshold_note(table, default, "moving_point", default) is None
+    assert ustar.unused_threshold_note(table, 0.3, "fixed", default) is None
+    fallback = table.assign(source=["fallback", "fallback"])
+    assert ustar.unused_threshold_note(fallback, 0.3, "moving_point", default) is None
