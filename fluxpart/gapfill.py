@@ -705,13 +705,22 @@ def _local_linear(residual, donor_drivers, gap_drivers, tolerances, run_starts, 
     scaled, offset = [], np.empty((n_gaps, k))
     for j, (x, at_gap, tolerance) in enumerate(zip(donor_drivers, gap_drivers, tolerances,
                                                    strict=True)):
+        missing = np.isnan(x)
+        if missing.any():
+            # a regressor missing at a record (NaN) sits at its records' mean: no leverage
+            present = ~missing
+            donor_mean = (np.add.reduceat(np.where(present, x, 0.0), run_starts)
+                          / np.add.reduceat(present, run_starts))
+            deviation = np.where(present, x - np.repeat(donor_mean, counts), 0.0)
+        else:
+            donor_mean = np.add.reduceat(x, run_starts) / counts
+            deviation = x - np.repeat(donor_mean, counts)
+        if np.ndim(tolerance) == 0:
+            deviation /= float(tolerance)
+        else:
+            deviation /= np.repeat(np.asarray(tolerance, dtype=float), counts)
+        scaled.append(deviation)
         tolerance = np.broadcast_to(np.asarray(tolerance, dtype=float), (n_gaps,))
-        # a regressor missing at a record (NaN) sits at its records' mean: no leverage
-        present = ~np.isnan(x)
-        donor_mean = (np.add.reduceat(np.where(present, x, 0.0), run_starts)
-                      / np.add.reduceat(present, run_starts))
-        scaled.append(np.where(present, x - np.repeat(donor_mean, counts), 0.0)
-                      / np.repeat(tolerance, counts))
         reference = donor_mean if reference_means is None else reference_means[j]
         # ... and missing at the gap (or at every donor): no offset
         relative = (at_gap - reference) / tolerance
