@@ -243,13 +243,10 @@ from trial_scoring import (  # noqa: E402
     FLUXES,
     TRUTH_OF,
     check_and_run,
+    finish,
     fluxpart_cli,
     misses,
     print_flux_table,
-    print_table,
-    save_scores,
-    summary_cells,
-    summary_header,
 )
 
 GC_PER_UMOL = 12.011e-6  # g C per umol (standard atomic weight of carbon (m))
@@ -988,17 +985,9 @@ def main(argv=None):
         for row in score(site, truth, folder / "out", check):
             print_row(row)
             rows.append(row)
-    scored = [r for r in rows if r["complete"]]
-    if not scored:
-        return 1
-    save_scores(rows, options.out)
-    width = max(len(r["site_year"]) for r in scored) + 1
-    print(summary_header(width) + f" {'u* %':>6s}")
-    for r in scored:
-        print(summary_cells(r, width) + f" {r['ustar_rel']:+6.0f}")
-    print_table(scored)
+    code = finish(rows, options.out)
     print(f"({time.perf_counter() - t0:.0f} s)")
-    return 0
+    return code
 
 
 if __name__ == "__main__":

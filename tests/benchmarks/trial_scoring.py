@@ -151,3 +151,18 @@ def print_table(rows):
     us = [abs(r["ustar_rel"]) <= 20 for r in rows]
     print(f"u* within 20 %: {sum(us)} of {len(rows)}; median "
           f"{np.median([r['ustar_rel'] for r in rows]):+.1f} %")
+
+
+def finish(rows, out):
+    """Save the scores, print the summary table of the complete site-years; the exit code
+    (1 where no site-year is complete)."""
+    scored = [r for r in rows if r["complete"]]
+    if not scored:
+        return 1
+    save_scores(rows, out)
+    width = max(len(r["site_year"]) for r in scored) + 1
+    print(summary_header(width) + f" {'u* %':>6s}")
+    for r in scored:
+        print(summary_cells(r, width) + f" {r['ustar_rel']:+6.0f}")
+    print_table(scored)
+    return 0

@@ -208,12 +208,9 @@ from trial_scoring import (  # noqa: E402
     FLUXES,
     TRUTH_OF,
     check_and_run,
+    finish,
     print_flux_table,
-    print_table,
     print_warnings_and_misses,
-    save_scores,
-    summary_cells,
-    summary_header,
 )
 
 GC_PER_UMOL = 12.011e-6  # g C per umol (standard atomic weight of carbon (m))
@@ -907,16 +904,7 @@ def main(argv=None):
             print_sources(row)
             print_warnings_and_misses(row)
             rows.append(row)
-    scored = [r for r in rows if r["complete"]]
-    if not scored:
-        return 1
-    save_scores(rows, options.out)
-    width = max(len(r["site_year"]) for r in scored) + 1
-    print(summary_header(width) + f" {'u* %':>6s}")
-    for r in scored:
-        print(summary_cells(r, width) + f" {r['ustar_rel']:+6.0f}")
-    print_table(scored)
-    return 0
+    return finish(rows, options.out)
 
 
 if __name__ == "__main__":
