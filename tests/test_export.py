@@ -365,3 +365,17 @@ def test_a_day_the_record_begins_or_ends_within_says_how_much_of_it_the_sums_cov
     assert inside.sum() == 24
     np.testing.assert_allclose(float(dataset["nee"].to_numpy()[inside].sum()) * 1800 * 1e3,
                                float(dataset["nee_daily_sum"][0]), rtol=1e-12)
+
+
+def test_the_result_docstring_names_every_parameter_table_and_fill_class(written_demo):
+    """A modeller reads ``help(fluxpart.Result)`` for what a result holds (numpy docstring
+    convention, common practice): it listed four of the eight parameter tables a run
+    writes and left out the fill class ``interpolated`` its drivers carry."""
+    import fluxpart
+
+    result, _ = written_demo
+    doc = fluxpart.Result.__doc__
+    for key in result.parameters:
+        assert f"``{key}``" in doc, key
+    for label in result.timeseries["tair_fill_quality"].cat.categories:
+        assert f'``"{label}"``' in doc, label
