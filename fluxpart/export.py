@@ -249,6 +249,11 @@ def to_xarray(result):
     seconds = daily["records"].to_numpy(dtype=float) * interval * 60.0 \
         if "records" in daily.columns else np.full(len(daily), 86400.0)
     seconds = np.where(seconds > 0, seconds, np.nan)
+    present = None
+    if {"records", "records_expected"} <= set(daily.columns):
+        expected = daily["records_expected"].to_numpy(dtype=float)
+        present = daily["records"].to_numpy(dtype=float) / np.where(expected > 0, expected,
+                                                                     np.nan)
     for name in _FLUXES:
         if name not in daily.columns:
             continue
@@ -256,17 +261,23 @@ def to_xarray(result):
         text = _FLUXES[name][1]
         mean = {"long_name": f"daily mean of {text}", "units": "kg m-2 s-1",
                 "cell_methods": "day: mean (comment: over the records present)"}
+        if present is not None:
+            mean["ancillary_variables"] = "share_present_daily"
         if name.startswith("gpp"):
             mean["standard_name"] = STANDARD_NAMES["gpp"]
         variables[f"{name}_daily_mean"] = ("day", grams * 1e-3 / seconds, mean)
+        # a day the record begins or ends within sums only its records present: say so
+        # where the method is stated (CF 1.10 §7.3) and link how much of the day that is
         total = {"long_name": f"daily sum of {text}; grams of carbon", "units": "g m-2",
-                 "cell_methods": "day: sum"}
+                 "cell_methods": "day: sum (comment: over the records present)"}
         variables[f"{name}_daily_sum"] = ("day", grams, total)
         sigma = f"{name}_sigma"
         # the sum's uncertainty and coverage travel with it (CF 1.10 §3.4 ancillary data)
         ancillary = [f"{name}_daily_sum_sigma"] if sigma in daily.columns else []
         if "share_measured" in daily.columns:
             ancillary.append("share_measured_daily")
+        if present is not None:
+            ancillary.append("share_present_daily")
         if ancillary:
             total["ancillary_variables"] = " ".join(ancillary)
         if sigma in daily.columns:
@@ -277,6 +288,12 @@ def to_xarray(result):
         variables["share_measured_daily"] = ("day", daily["share_measured"].to_numpy(dtype=float),
                                              {"long_name": "share of the day's records with "
                                               "measured NEE", "units": "1"})
+    if present is not None:
+        variables["share_present_daily"] = ("day", present, {
+            "long_name": "share of the day's records present (records over the records a "
+                         "full day has at this interval); below 1 on a day the record begins "
+                         "or ends within, whose daily sums and means cover only the records "
+                         "present", "units": "1"})
 
     coords = {
         "time": ("time", time, {"standard_name": "time", "long_name": "middle of the averaging "

@@ -235,7 +235,10 @@ def _ustar_fact(written: Written, label, row, mask) -> str:
     years = sorted(set(written.timeseries.index[mask].year) & set(rows.index)) \
         if "threshold" in rows.columns else []
     if len(years) < 2:
-        return (f"{value}{_ustar_range(written, label)}; night records below it were removed "
+        # the one calendar year whose records the period holds owns the threshold; the
+        # budget-year label is another year where the period's records begin after it
+        own = years[0] if years else label
+        return (f"{value}{_ustar_range(written, own)}; night records below it were removed "
                 "before gap filling.")
     parts = "; ".join(
         f"{year}: {float(rows.loc[year, 'threshold']):.3f} m s-1{_ustar_range(written, year)}"

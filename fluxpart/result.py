@@ -35,11 +35,14 @@ class Result:
         its fill columns, ``gpp_nighttime``, ``reco_nighttime``, ``gpp_daytime``,
         ``reco_daytime`` [µmol m-2 s-1]. ``rejection_reason``, ``nee_fill_method``
         and the ``*_fill_quality`` columns are labelled categoricals (``"measured"``,
-        ``"A"``, ``"B"``, ``"C"``, ``"unfilled"``; reason names). Units and
+        ``"A"``, ``"B"``, ``"C"``, ``"interpolated"`` (a short driver gap),
+        ``"unfilled"``; reason names). Units and
         descriptions: :func:`fluxpart.schema.describe`.
     daily, monthly, annual : pandas.DataFrame
-        Budgets [g C m-2 per period] with coverage; ``annual`` is indexed by year
-        and carries ``ustar_threshold`` [m s-1] and the u* scenario spread.
+        Budgets [g C m-2 per period] with coverage, indexed by ``date``, ``month``
+        (first day) and budget ``year``; sums over the records present (``complete``
+        false where a period lacks records or has unfilled NEE). ``annual`` carries
+        ``ustar_threshold`` [m s-1] and the u* scenario spread.
     ustar : pandas.DataFrame
         u* thresholds per year and season with their bootstrap percentiles [m s-1].
     audit : pandas.DataFrame
@@ -47,7 +50,9 @@ class Result:
         filled by quality class, and the share of the |NEE| sum measured vs filled.
     parameters : dict of str to pandas.DataFrame
         Fitted parameter tables: ``nighttime_e0``, ``nighttime_e0_annual``,
-        ``nighttime_rref``, ``daytime``.
+        ``nighttime_rref``, ``daytime``, and the uncertainty models
+        ``random_error_bins``, ``random_error_model``, ``gapfill_error_model``,
+        ``ustar_bootstrap``.
     screening_counts : pandas.Series
         Records per screening reason.
     warnings : tuple of str

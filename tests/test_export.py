@@ -67,7 +67,8 @@ def test_time_is_utc_with_bounds_and_daily_sums_agree(exported):
     np.testing.assert_allclose(dataset["nee_daily_mean"].to_numpy() * seconds * 1e3,
                                result.daily["nee"].to_numpy(dtype=float), rtol=1e-12)
     assert dataset["nee"].attrs["cell_methods"] == "time: mean"
-    assert dataset["nee_daily_sum"].attrs["cell_methods"] == "day: sum"
+    assert dataset["nee_daily_sum"].attrs["cell_methods"] == \
+        "day: sum (comment: over the records present)"
     # free text after a method goes in parentheses as "(comment: ...)": CF conventions
     # 1.8, section 7.3 (m)
     method = dataset["nee_daily_mean"].attrs["cell_methods"]
@@ -120,7 +121,7 @@ def test_daily_sums_link_their_uncertainty_and_coverage(exported):
     assert sums
     for name in sums:
         linked = dataset[name].attrs["ancillary_variables"].split()
-        assert linked == [f"{name}_sigma", "share_measured_daily"]
+        assert linked == [f"{name}_sigma", "share_measured_daily", "share_present_daily"]
         for other in linked:
             assert dataset[other].dims == dataset[name].dims
         flux = name.removesuffix("_daily_sum")
@@ -325,3 +326,56 @@ def test_export_and_load_know_no_orchestrator():
                           timeout=60, check=True)
     loaded = set(eval(done.stdout))
     assert not loaded & {"fluxpart.pipeline", "fluxpart.gapfill", "fluxpart.partition"}, loaded
+
+
+def test_a_day_the_record_begins_or_ends_within_says_how_much_of_it_the_sums_cover():
+    """Known-truth recovery on the invented demo site: a record cut to start at noon and
+    end at 06:00 holds 24 and 12 of its first and last days' 48 half-hours. Each daily
+    sum and mean covers the records present; the file said "day: sum" over day bounds of
+    the whole day with nothing to tell a half day's sum from a full day's (a modeller read
+    0.18 g C m-2 as the day's NEE). CF conventions 1.10 (m): section 7.3, free text on a
+    cell method goes in "(comment: ...)"; section 3.4, "ancillary_variables" names the
+    variables describing a data variable's quality."""
+    import warnings
+
+    import fluxpart
+    from fluxpart import demo
+
+    frame, _ = demo.site_year(seed=1)
+    frame = frame.loc["2021-03-15 12:00":"2021-10-20 05:30"]
+    site = fluxpart.Site("Cut meadow (fictional)", 49.3, 10.2, 1.0, "short")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", fluxpart.FluxpartWarning)
+        result = fluxpart.process(frame, site)
+    dataset = to_xarray(result)
+    share = dataset["share_present_daily"].to_numpy()
+    assert share[0] == 24 / 48 and share[-1] == 12 / 48
+    assert (share[1:-1] == 1.0).all()
+    assert dataset["share_present_daily"].attrs["units"] == "1"
+    for name in ("nee", "gpp_daytime", "reco_nighttime"):
+        assert "share_present_daily" in \
+            dataset[f"{name}_daily_sum"].attrs["ancillary_variables"].split()
+        assert dataset[f"{name}_daily_mean"].attrs["ancillary_variables"] == \
+            "share_present_daily"
+        assert dataset[f"{name}_daily_sum"].attrs["cell_methods"] == \
+            "day: sum (comment: over the records present)"
+    # the first day's sum is the half-hours present, integrated (1800 s each, kg -> g)
+    bounds = dataset["day_bounds"].to_numpy()[0]
+    inside = (dataset["time"].to_numpy() > bounds[0]) & (dataset["time"].to_numpy() < bounds[1])
+    assert inside.sum() == 24
+    np.testing.assert_allclose(float(dataset["nee"].to_numpy()[inside].sum()) * 1800 * 1e3,
+                               float(dataset["nee_daily_sum"][0]), rtol=1e-12)
+
+
+def test_the_result_docstring_names_every_parameter_table_and_fill_class(written_demo):
+    """A modeller reads ``help(fluxpart.Result)`` for what a result holds (numpy docstring
+    convention, common practice): it listed four of the eight parameter tables a run
+    writes and left out the fill class ``interpolated`` its drivers carry."""
+    import fluxpart
+
+    result, _ = written_demo
+    doc = fluxpart.Result.__doc__
+    for key in result.parameters:
+        assert f"``{key}``" in doc, key
+    for label in result.timeseries["tair_fill_quality"].cat.categories:
+        assert f'``"{label}"``' in doc, label

@@ -1123,3 +1123,30 @@ def test_methods_name_the_fill_estimate_the_result_was_made_with():
              for estimate in ("donor_mean", "local_linear")}
     truth = -8.0 + 2.0 * 2.0
     assert abs(fills["local_linear"] - truth) < 0.2 * abs(fills["donor_mean"] - truth)
+
+
+def test_a_budget_year_of_one_calendar_years_records_shows_that_years_range():
+    """A July-June budget year labelled 2020 whose records all lie in January-June 2021 (a
+    record that starts in January, ``year_start = "07-01"``) applies the 2021 threshold; its
+    card showed it without a range (the range was looked up under the label 2020), or, where
+    2020 had a u* row of its own (records in its first half, an outage after), beside the
+    2020 range. A percentile interval belongs to the estimate it was bootstrapped for
+    (Efron & Tibshirani 1993 (m))."""
+    index = pd.date_range("2021-01-01", "2021-06-30 23:30", freq="30min")
+    series = pd.DataFrame({"nee_filled": 1.0}, index=index)
+    annual = pd.DataFrame({"nee": [-50.0], "period_start": [pd.Timestamp("2020-07-01")],
+                           "period_end": [pd.Timestamp("2021-07-01")], "complete": [False],
+                           "ustar_threshold": [0.181]},
+                          index=pd.Index([2020], name="year"))
+    rows = {2020: (0.152, 0.147, 0.174), 2021: (0.181, 0.160, 0.199)}
+    for years in ([2021], [2020, 2021]):
+        ustar = pd.DataFrame([{"year": y, "period": "year", "threshold": rows[y][0],
+                               "threshold_p05": rows[y][1], "threshold_p95": rows[y][2]}
+                              for y in years])
+        written = Written(manifest={}, tables={"timeseries": series, "annual": annual,
+                                               "ustar": ustar})
+        summary, _ = report._summary_card(written)
+        line = re.sub(r"<[^>]+>", "", re.search(r"u\* threshold:</strong>(.*?)</li>",
+                                                  summary).group(1))
+        assert line == (" 0.181 m s-1 (bootstrap 5–95 %: 0.160–0.199 m s-1); night records "
+                        "below it were removed before gap filling."), years
