@@ -1,0 +1,103 @@
+"""Faults of round faults20: ``fluxpart batch`` worker options and site keys.
+
+Outside references: Dask.distributed's ``LocalCluster`` (its ``n_workers`` argument,
+one process per worker; each site is one task, so a worker beyond the number of
+tasks never runs one: common practice); POSIX ``errno.EMFILE`` (too many open files)
+and ``EAGAIN`` (fork: no more processes) as raised by the C library; the default file
+systems of macOS (APFS, HFS+) and Windows (NTFS) compare names without case (m).
+Invented Quillmoor towers (fictional) of :mod:`fluxpart.demo` only.
+"""
+
+import errno
+from pathlib import Path
+
+import pytest
+
+pytest.importorskip("distributed")
+dask_distributed = pytest.importorskip("dask.distributed")
+
+from fluxpart import batch  # noqa: E402
+from fluxpart.cli import main  # noqa: E402
+from fluxpart.demo import write_example  # noqa: E402
+
+
+def _sites(tmp_path: Path, count: int) -> Path:
+    """A network file of `count` invented hourly towers (nothing computed)."""
+    for number in range(count):
+        written = write_example(tmp_path / "sites" / f"tower{number}", seed=number,
+                                interval_minutes=60)
+        written.rename(written.with_name(f"tower{number}.toml"))
+    path = tmp_path / "SITES.toml"
+    path.write_text('[batch]\nsites = ["sites/*/*.toml"]\nout = "out"\n', encoding="utf-8")
+    return path
+
+
+class _Started(Exception):
+    """Raised by the stand-in cluster once it has seen its arguments."""
+
+
+def test_no_more_local_workers_than_sites(tmp_path, monkeypatch):
+    """``--workers 50`` for 2 sites starts 2 worker processes, not 50 (Dask LocalCluster
+    ``n_workers``: one process each; a third worker would never get one of 2 tasks)."""
+    seen = {}
+
+    def stand_in(**kwargs):
+        seen.update(kwargs)
+        raise _Started
+
+    monkeypatch.setattr(dask_distributed, "LocalCluster", stand_in)
+    sites = _sites(tmp_path, 2)
+    with pytest.raises(_Started):
+        batch.run_batch(sites, workers=50)
+    assert seen["n_workers"] == 2
+    assert seen["threads_per_worker"] == 1
+    seen.clear()
+    with pytest.raises(_Started):
+        batch.run_batch(sites, workers=1)
+    assert seen["n_workers"] == 1
+    # the pure rule: default 2, never above the sites, never below one
+    assert batch.local_workers(None, 5) == 2
+    assert batch.local_workers(None, 1) == 1
+    assert batch.local_workers(7, 3) == 3
+    assert batch.local_workers(1, 3) == 1
+
+
+@pytest.mark.parametrize("code", [errno.EMFILE, errno.EAGAIN])
+def test_a_local_cluster_that_cannot_start_is_one_error_line(tmp_path, monkeypatch, capsys,
+                                                              code):
+    """Out of file handles (EMFILE) or processes (EAGAIN, POSIX fork) while the workers
+    start: one ``error:`` line naming --workers, exit 2, no traceback, no site folder."""
+    def stand_in(**kwargs):
+        raise OSError(code, "simulated")
+
+    monkeypatch.setattr(dask_distributed, "LocalCluster", stand_in)
+    sites = _sites(tmp_path, 2)
+    assert main(["batch", str(sites), "--workers", "2", "--quiet"]) == 2
+    captured = capsys.readouterr()
+    lines = [line for line in captured.err.splitlines() if line.strip()]
+    assert len(lines) == 1 and lines[0].startswith("error:")
+    assert "--workers" in lines[0] and "Traceback" not in captured.err
+    out = tmp_path / "out"
+    assert not any(entry.name.startswith("tower") for entry in out.iterdir())
+
+
+def test_site_keys_differ_without_case(tmp_path):
+    """``a/Fen.toml`` and ``b/fen.toml`` get keys that differ on a file system that
+    ignores case (APFS, NTFS (m)); a site named like the failures table does too."""
+    configs = []
+    for folder, name in (("a", "Fen"), ("b", "fen"), ("c", "FAILURES")):
+        (tmp_path / folder).mkdir()
+        config = tmp_path / folder / f"{name}.toml"
+        config.write_text("", encoding="utf-8")
+        configs.append(config)
+    path = tmp_path / "SITES.toml"
+    path.write_text('[batch]\nsites = ["a/Fen.toml", "b/fen.toml", "c/FAILURES.toml"]\n',
+                    encoding="utf-8")
+    keys = [key for key, _ in batch.read_sites_file(path).sites]
+    folded = [key.casefold() for key in keys]
+    assert len(set(folded)) == 3
+    assert keys[:2] == ["a-Fen", "b-fen"]
+    # FAILURES is not the reserved name 'failures.parquet'; a stem equal to it in another
+    # case is moved off it
+    assert batch._site_keys([tmp_path / "x" / "Failures.parquet.toml"])[0].casefold() \
+        != batch.FAILURES_FILE.casefold()
