@@ -101,3 +101,39 @@ def test_site_keys_differ_without_case(tmp_path):
     # case is moved off it
     assert batch._site_keys([tmp_path / "x" / "Failures.parquet.toml"])[0].casefold() \
         != batch.FAILURES_FILE.casefold()
+
+
+# --------------------------------------------------------------------------- export
+
+def test_export_of_an_older_result_names_the_release_that_computed_it(written_demo, tmp_path,
+                                                                      monkeypatch, capsys):
+    """CF-1.10 section 2.6.2: ``source`` is "the method of production of the original
+    data", ``history`` the audit trail of changes. A result folder computed by one
+    release and exported by a later one (simulated by raising the exporter's version)
+    keeps the computing release as ``source`` and names the export in ``history``;
+    read back with xarray (a general-purpose library)."""
+    xr = pytest.importorskip("xarray")
+    import fluxpart
+    from fluxpart.manifest import read_manifest
+
+    _, folder = written_demo
+    computed = read_manifest(folder)["versions"]["fluxpart"]
+    same = tmp_path / "same.nc"
+    assert main(["export", str(folder), "--netcdf", str(same)]) == 0
+    with xr.open_dataset(same) as dataset:
+        assert dataset.attrs["source"] == f"fluxpart {computed}"
+        assert "history" not in dataset.attrs
+    monkeypatch.setattr(fluxpart, "__version__", "99.0.0")
+    later = tmp_path / "later.nc"
+    assert main(["export", str(folder), "--netcdf", str(later)]) == 0
+    with xr.open_dataset(later) as dataset:
+        assert dataset.attrs["source"] == f"fluxpart {computed}"
+        assert "fluxpart 99.0.0" in dataset.attrs["history"]
+        assert f"fluxpart {computed}" in dataset.attrs["history"]
+    from fluxpart.export import to_xarray, written_by_fluxpart
+
+    assert to_xarray(folder).attrs["source"] == f"fluxpart {computed}"
+    # the later release still recognises its own export and may replace it
+    assert written_by_fluxpart(later)
+    assert main(["export", str(folder), "--netcdf", str(later)]) == 0
+    capsys.readouterr()
