@@ -1133,6 +1133,35 @@ def _check_out(out: Path) -> None:
                               "lists; choose another --out or [batch] out outside it")
 
 
+def enclosing_network_dataset(path) -> Path | None:
+    """The network dataset folder of a batch output folder that holds `path`, or None.
+
+    A batch rewrites ``OUT/network_annual/``, ``OUT/network_monthly/`` and
+    ``OUT/network_daily/`` whole on every run, so anything else put there is deleted
+    without a word by the next batch, and until then ``pandas.read_parquet`` and
+    ``pyarrow.dataset`` of the folder (the documented readers, Hive-style partitions)
+    meet a file that is not Parquet. ``run``, ``report`` and ``export`` refuse to write
+    there.
+
+    Parameters
+    ----------
+    path : path-like
+        A file or folder about to be written (absolute or relative to the working
+        folder; symbolic links are resolved).
+
+    Returns
+    -------
+    pathlib.Path or None
+        The dataset folder (its parent holds ``network.json``), or None.
+    """
+    target = Path(path).absolute().resolve()
+    names = set(NETWORK_DATASETS.values())
+    for folder in (target, *target.parents):
+        if folder.name in names and (folder.parent / NETWORK_SEAL).is_file():
+            return folder
+    return None
+
+
 def _make_writable_out(out: Path) -> None:
     """Make the batch output folder and check that files can be written in it.
 

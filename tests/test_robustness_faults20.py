@@ -137,3 +137,61 @@ def test_export_of_an_older_result_names_the_release_that_computed_it(written_de
     assert written_by_fluxpart(later)
     assert main(["export", str(folder), "--netcdf", str(later)]) == 0
     capsys.readouterr()
+
+
+def _fake_batch_output(tmp_path: Path) -> Path:
+    """A batch output folder's shape: the seal and one Hive-style partition (``site=<key>``)
+    of each network dataset, holding a real Parquet file written by pyarrow."""
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    out = tmp_path / "network-output"
+    for name in ("network_annual", "network_monthly", "network_daily"):
+        (out / name / "site=tower0").mkdir(parents=True)
+        pq.write_table(pa.table({"year": [2021]}), out / name / "site=tower0" / "part-0.parquet")
+    (out / batch.NETWORK_SEAL).write_text("{}", encoding="utf-8")
+    return out
+
+
+@pytest.mark.parametrize("inside", ["network_annual/fen.nc",
+                                    "network_daily/site=tower0/fen.nc"])
+def test_export_refuses_a_network_table_folder(written_demo, tmp_path, capsys, inside):
+    """A NetCDF put into a batch's network dataset folder would be deleted by the next
+    batch (the folder is replaced whole) and, until then, breaks ``pandas.read_parquet``
+    and ``pyarrow.dataset`` of the folder (pyarrow: "Parquet magic bytes not found"):
+    one ``error:`` line, exit 2, nothing written; a file beside the datasets is fine."""
+    pytest.importorskip("xarray")
+    import pyarrow.dataset as ds
+
+    _, folder = written_demo
+    out = _fake_batch_output(tmp_path)
+    target = out / inside
+    assert main(["export", str(folder), "--netcdf", str(target)]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("error:") and "network table folder" in err
+    assert not target.exists()
+    # the documented reader still reads the dataset (pyarrow, Hive partitioning)
+    assert ds.dataset(out / "network_annual", partitioning="hive").to_table().num_rows == 1
+    beside = out / "fen.nc"
+    assert main(["export", str(folder), "--netcdf", str(beside)]) == 0
+    assert beside.is_file()
+
+
+def test_report_and_run_refuse_a_network_table_folder(written_demo, tmp_path, capsys):
+    """``report --out`` and ``run --out`` inside a network dataset folder: one ``error:``
+    line each, exit 2, nothing written there (the next batch would delete it)."""
+    _, folder = written_demo
+    out = _fake_batch_output(tmp_path)
+    page = out / "network_monthly" / "page"
+    assert main(["report", str(folder), "--out", str(page), "--quiet"]) == 2
+    assert "network table folder" in capsys.readouterr().err
+    assert not page.exists()
+    assert batch.enclosing_network_dataset(out / "network_daily" / "x" / "y") == \
+        (out / "network_daily").resolve()
+    assert batch.enclosing_network_dataset(out / "fen") is None
+    site = tmp_path / "site.toml"
+    site.write_text("", encoding="utf-8")
+    result = out / "network_annual" / "run"
+    assert main(["run", str(site), "--out", str(result)]) == 2
+    assert not result.exists()
+    assert "network table folder" in capsys.readouterr().err
