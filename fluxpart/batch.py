@@ -1022,7 +1022,8 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
                           f"({error.strerror or error}); the site folders written are whole, "
                           "and a rerun skips them and rewrites the network tables") from None
     return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures,
-                       warnings=tuple(same_input_sites(outcomes) + same_name_sites(outcomes)))
+                       warnings=tuple(same_input_sites(outcomes) + same_name_sites(outcomes)
+                                      + unlisted_site_folders(out, [k for k, _ in network.sites])))
 
 
 def _input_hashes(directory: Path) -> tuple:
@@ -1131,6 +1132,40 @@ def _check_out(out: Path) -> None:
             raise OutputError(f"batch output folder {str(out)!r} {where} the result folder "
                               f"{str(folder)!r}, which must hold only the files its manifest "
                               "lists; choose another --out or [batch] out outside it")
+
+
+def unlisted_site_folders(out, keys) -> list[str]:
+    """A warning naming the result folders in `out` of sites the network file no longer lists.
+
+    A site taken out of the network file (or renamed, or whose key changed) keeps the
+    folder an earlier batch wrote; the network tables leave it out, but the folder
+    looks as current as the others. Empty list where there is none.
+
+    Parameters
+    ----------
+    out : path-like
+        The batch output folder.
+    keys : iterable of str
+        The site keys of this run's network file.
+
+    Returns
+    -------
+    list of str
+        At most one warning text.
+    """
+    listed = set(keys)
+    try:
+        found = sorted(entry.name for entry in Path(out).iterdir()
+                       if entry.name not in listed and not entry.name.startswith(".")
+                       and (entry / MANIFEST_FILE).is_file())
+    except OSError:
+        return []
+    if not found:
+        return []
+    shown = ", ".join(repr(name) for name in found[:5]) + (" ..." if len(found) > 5 else "")
+    return [f"{len(found)} result folder(s) in {str(out)!r} belong to no site of this network "
+            f"file ({shown}: an earlier batch's sites, since removed, renamed or re-keyed): "
+            "kept, but left out of the network tables; delete them if they are not wanted"]
 
 
 def enclosing_network_dataset(path) -> Path | None:

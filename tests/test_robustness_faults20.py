@@ -195,3 +195,21 @@ def test_report_and_run_refuse_a_network_table_folder(written_demo, tmp_path, ca
     assert main(["run", str(site), "--out", str(result)]) == 2
     assert not result.exists()
     assert "network table folder" in capsys.readouterr().err
+
+
+def test_folders_of_sites_no_longer_listed_are_named(tmp_path):
+    """A site removed from the network file keeps its earlier result folder, which the
+    network tables leave out: the batch names it (known truth on invented folders: two
+    listed, one unlisted result folder, one plain user folder and one hidden staging
+    folder, which are not result folders)."""
+    out = _fake_batch_output(tmp_path)
+    for name in ("tower0", "tower1", "tower2", ".tower3.staging-abcd1234"):
+        (out / name).mkdir()
+        (out / name / "manifest.json").write_text("{}", encoding="utf-8")
+    (out / "notes").mkdir()
+    warnings = batch.unlisted_site_folders(out, ["tower0", "tower1"])
+    assert len(warnings) == 1 and "'tower2'" in warnings[0]
+    assert "tower0" not in warnings[0] and "notes" not in warnings[0]
+    assert "staging" not in warnings[0]
+    assert batch.unlisted_site_folders(out, ["tower0", "tower1", "tower2"]) == []
+    assert batch.unlisted_site_folders(tmp_path / "absent", ["tower0"]) == []
