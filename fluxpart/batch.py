@@ -287,7 +287,8 @@ def read_sites_file(path) -> NetworkFile:
     written. Matches of each pattern are sorted; a config listed twice is kept once. A site's key is its config's file stem (characters other than letters,
     digits, ``.``, ``_`` and ``-`` become ``_``); stems that occur more than once
     are prefixed with their folder's name (``north/tower.toml`` ->
-    ``north-tower``), and a key still taken gets ``-2``, ``-3``, ...
+    ``north-tower``), and a key still taken gets ``-2``, ``-3``, ... Keys are
+    compared without case (``Fen`` and ``fen`` are one folder on macOS and Windows).
     """
     path = Path(path)
     document = read_toml(path, "network file")
@@ -365,15 +366,24 @@ def _clean_key(text: str) -> str:
 
 
 def _site_keys(configs: list[Path]) -> list[str]:
+    """One folder name per site config: its stem, made distinct where stems clash.
+
+    Keys are compared without case (``str.casefold``): the default file systems of
+    macOS (APFS, HFS+) and Windows (NTFS) and SMB shares do not tell ``Fen`` from
+    ``fen`` (common practice (m)), so ``a/Fen.toml`` and ``b/fen.toml`` would write
+    one folder, and a site named ``Failures.parquet`` would land on the failures table.
+    """
     stems = [_clean_key(config.stem) for config in configs]
-    counts = Counter(stems)
+    counts = Counter(stem.casefold() for stem in stems)
+    reserved = {name.casefold() for name in _RESERVED_KEYS}
     keys, used = [], set()
     for config, stem in zip(configs, stems, strict=True):
-        base = stem if counts[stem] == 1 else _clean_key(f"{config.parent.name}-{config.stem}")
+        base = (stem if counts[stem.casefold()] == 1
+                else _clean_key(f"{config.parent.name}-{config.stem}"))
         key, number = base, 2
-        while key in used or key in _RESERVED_KEYS:
+        while key.casefold() in used or key.casefold() in reserved:
             key, number = f"{base}-{number}", number + 1
-        used.add(key)
+        used.add(key.casefold())
         keys.append(key)
     return keys
 
@@ -842,9 +852,41 @@ def _check_cluster_options(scheduler, workers) -> None:
                           "the cluster's own workers are used")
 
 
-def _client(scheduler, workers):
+def local_workers(workers, sites: int) -> int:
+    """The processes a local cluster starts: `workers` (default 2), at most one per site.
+
+    Each site is one task run by one single-threaded worker, so a worker beyond the
+    number of sites never receives a task; it would only cost a process, its
+    imports and its file handles (``--workers 1000`` for 3 sites started 1000
+    processes on a 2-core machine and ended in a traceback when the process table
+    or the open-file limit ran out).
+
+    Parameters
+    ----------
+    workers : int or None
+        The ``--workers`` given (>= 1), or None for the default.
+    sites : int
+        Sites of the network file.
+
+    Returns
+    -------
+    int
+        Worker processes to start (>= 1).
+
+    References
+    ----------
+    Dask.distributed documentation, ``LocalCluster`` (one task per thread; common
+    practice: no more workers than tasks).
+    """
+    wanted = workers or _DEFAULT_WORKERS
+    return max(1, min(wanted, sites))
+
+
+def _client(scheduler, workers, sites: int | None = None):
     """Return (client, cluster or None) for an address or a new local cluster."""
     _check_cluster_options(scheduler, workers)
+    if sites is not None:
+        workers = local_workers(workers, sites)
     import dask
     from dask.distributed import Client, LocalCluster
 
@@ -877,14 +919,23 @@ def _client(scheduler, workers):
                               "distributed.worker.multiprocessing-method": method}):
             if method == "forkserver":
                 _use_fork_server()
-            cluster = LocalCluster(n_workers=workers or _DEFAULT_WORKERS, threads_per_worker=1,
-                                   processes=True, host="127.0.0.1", dashboard_address=None,
-                                   silence_logs=logging.ERROR,
-                                   # no dashboard, but the scheduler still serves HTTP
-                                   # (health, metrics): on a free port, not on 8787, which
-                                   # another cluster or batch may hold (Dask then warned
-                                   # "Port 8787 is already in use" on stderr)
-                                   scheduler_kwargs={"dashboard_address": "127.0.0.1:0"})
+            try:
+                cluster = LocalCluster(n_workers=workers or _DEFAULT_WORKERS,
+                                       threads_per_worker=1,
+                                       processes=True, host="127.0.0.1", dashboard_address=None,
+                                       silence_logs=logging.ERROR,
+                                       # no dashboard, but the scheduler still serves HTTP
+                                       # (health, metrics): on a free port, not on 8787, which
+                                       # another cluster or batch may hold (Dask then warned
+                                       # "Port 8787 is already in use" on stderr)
+                                       scheduler_kwargs={"dashboard_address": "127.0.0.1:0"})
+            except (OSError, TimeoutError, RuntimeError) as error:
+                # out of processes, file handles or memory for the workers; no site has
+                # been computed and nothing written but the (empty or earlier) --out
+                raise OutputError(
+                    f"the local Dask cluster of {workers or _DEFAULT_WORKERS} worker(s) could "
+                    f"not start ({type(error).__name__}: {error}); give fewer --workers, or "
+                    "raise the limit that ran out (`ulimit -n`, `ulimit -u`)") from None
     finally:
         for name in set(os.environ) - set(saved):
             del os.environ[name]
@@ -909,7 +960,8 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
         local cluster of `workers` processes with one thread each, listening on
         127.0.0.1 only, without a dashboard, closed at the end.
     workers : int, optional
-        Processes of the local cluster; 2 when omitted.
+        Processes of the local cluster; 2 when omitted; never more than the
+        sites (:func:`local_workers`).
     out : str or path-like, optional
         Batch output folder; default ``[batch] out`` of the network file.
     force : bool, optional
@@ -956,7 +1008,7 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     _check_cluster_options(scheduler, workers)   # a usage error leaves no new folder
     _make_writable_out(out)          # before the cluster starts and any site is computed
     _sweep_leftovers(out, started)
-    client, cluster = _client(scheduler, workers)
+    client, cluster = _client(scheduler, workers, len(network.sites))
     try:
         outcomes = _run_tasks(client, network.sites, out, force, progress)
     finally:
@@ -970,7 +1022,8 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
                           f"({error.strerror or error}); the site folders written are whole, "
                           "and a rerun skips them and rewrites the network tables") from None
     return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures,
-                       warnings=tuple(same_input_sites(outcomes) + same_name_sites(outcomes)))
+                       warnings=tuple(same_input_sites(outcomes) + same_name_sites(outcomes)
+                                      + unlisted_site_folders(out, [k for k, _ in network.sites])))
 
 
 def _input_hashes(directory: Path) -> tuple:
@@ -1079,6 +1132,69 @@ def _check_out(out: Path) -> None:
             raise OutputError(f"batch output folder {str(out)!r} {where} the result folder "
                               f"{str(folder)!r}, which must hold only the files its manifest "
                               "lists; choose another --out or [batch] out outside it")
+
+
+def unlisted_site_folders(out, keys) -> list[str]:
+    """A warning naming the result folders in `out` of sites the network file no longer lists.
+
+    A site taken out of the network file (or renamed, or whose key changed) keeps the
+    folder an earlier batch wrote; the network tables leave it out, but the folder
+    looks as current as the others. Empty list where there is none.
+
+    Parameters
+    ----------
+    out : path-like
+        The batch output folder.
+    keys : iterable of str
+        The site keys of this run's network file.
+
+    Returns
+    -------
+    list of str
+        At most one warning text.
+    """
+    listed = set(keys)
+    try:
+        found = sorted(entry.name for entry in Path(out).iterdir()
+                       if entry.name not in listed and not entry.name.startswith(".")
+                       and (entry / MANIFEST_FILE).is_file())
+    except OSError:
+        return []
+    if not found:
+        return []
+    shown = ", ".join(repr(name) for name in found[:5]) + (" ..." if len(found) > 5 else "")
+    return [f"{len(found)} result folder(s) in {str(out)!r} belong to no site of this network "
+            f"file ({shown}: an earlier batch's sites, since removed, renamed or re-keyed): "
+            "kept, but left out of the network tables; delete them if they are not wanted"]
+
+
+def enclosing_network_dataset(path) -> Path | None:
+    """The network dataset folder of a batch output folder that holds `path`, or None.
+
+    A batch rewrites ``OUT/network_annual/``, ``OUT/network_monthly/`` and
+    ``OUT/network_daily/`` whole on every run, so anything else put there is deleted
+    without a word by the next batch, and until then ``pandas.read_parquet`` and
+    ``pyarrow.dataset`` of the folder (the documented readers, Hive-style partitions)
+    meet a file that is not Parquet. ``run``, ``report`` and ``export`` refuse to write
+    there.
+
+    Parameters
+    ----------
+    path : path-like
+        A file or folder about to be written (absolute or relative to the working
+        folder; symbolic links are resolved).
+
+    Returns
+    -------
+    pathlib.Path or None
+        The dataset folder (its parent holds ``network.json``), or None.
+    """
+    target = Path(path).absolute().resolve()
+    names = set(NETWORK_DATASETS.values())
+    for folder in (target, *target.parents):
+        if folder.name in names and (folder.parent / NETWORK_SEAL).is_file():
+            return folder
+    return None
 
 
 def _make_writable_out(out: Path) -> None:

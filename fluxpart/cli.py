@@ -134,6 +134,20 @@ def _enclosing_result(folder: Path) -> Path | None:
     return None
 
 
+def _refuse_network_dataset(option: str, given, path: Path) -> None:
+    """Refuse to write `path` inside a batch's network dataset folder (rewritten whole by
+    every batch: see :func:`fluxpart.batch.enclosing_network_dataset`)."""
+    from .batch import enclosing_network_dataset
+    from .errors import OutputError
+
+    dataset = enclosing_network_dataset(path)
+    if dataset is not None:
+        raise OutputError(f"{option} {str(given)!r} is inside the network table folder "
+                          f"{str(dataset)!r} of a batch, which every batch run replaces whole "
+                          "(what is put there is deleted, and Parquet readers of the folder "
+                          "fail on it until then); choose a place outside it")
+
+
 def _command_report(args) -> int:
     """``fluxpart report``: refuse an --out inside the result folder but outside report/."""
     from .errors import OutputError
@@ -141,6 +155,7 @@ def _command_report(args) -> int:
 
     if getattr(args, "out", None) is not None:
         out = Path(args.out).absolute().resolve()
+        _refuse_network_dataset("--out", args.out, out)
         enclosing = _enclosing_result(out)
         if enclosing is not None and not (out == enclosing / "report"
                                           or enclosing / "report" in out.parents):
@@ -159,6 +174,7 @@ def _command_export(args) -> int:
     from .export import command_export
 
     target = Path(args.netcdf).absolute().resolve()
+    _refuse_network_dataset("--netcdf", args.netcdf, target)
     enclosing = _enclosing_result(target.parent)
     if enclosing is not None and enclosing / "report" not in target.parents:
         raise OutputError(f"--netcdf {args.netcdf!r} is inside the result folder "
@@ -200,6 +216,7 @@ def _check_output_folder(out: Path, site_name=None) -> None:
     reason = replace_refusal(out)
     if reason:
         raise FluxpartError(f"--out {str(out)!r} {reason}; choose another --out")
+    _refuse_network_dataset("--out", out, out)
     enclosing = _enclosing_result(out.parent)
     if enclosing is not None:
         raise FluxpartError(f"--out {str(out)!r} is inside the result folder "

@@ -174,7 +174,9 @@ def to_xarray(result):
         for the bounds. Fluxes of carbon in kg m-2 s-1 (record and daily means) and
         daily sums in g m-2 (carbon); drivers in CF units; flags with
         ``flag_values``/``flag_meanings``; times in UTC with bounds; the site as
-        global attributes. Each variable's unit is a UDUNITS-2 string.
+        global attributes. Each variable's unit is a UDUNITS-2 string. For a result
+        folder computed by another release, ``source`` names that release and
+        ``history`` the export (:func:`_credit`).
 
     Raises
     ------
@@ -191,7 +193,8 @@ def to_xarray(result):
     if isinstance(result, (str, os.PathLike)):
         from .result import load
 
-        result = load(result)
+        folder, result = result, load(result)
+        return _credit(to_xarray(result), _computed_by(folder))
     series = result.timeseries
     missing = [column for column, _ in _FLUXES.values() if column not in series.columns]
     if missing:
@@ -343,6 +346,51 @@ def to_xarray(result):
     return dataset
 
 
+def _computed_by(directory) -> str | None:
+    """The fluxpart release that computed the result folder `directory` (its manifest's
+    ``versions.fluxpart``), or None where the manifest does not say."""
+    from .manifest import read_manifest
+
+    versions = read_manifest(directory).get("versions")
+    release = versions.get("fluxpart") if isinstance(versions, dict) else None
+    return release if isinstance(release, str) and release else None
+
+
+def _credit(dataset, computed_by: str | None):
+    """Name in `dataset`'s global attributes the release that computed its numbers.
+
+    ``source`` is "the method of production of the original data" and ``history``
+    "an audit trail for modifications to the original data" (CF-1.10 section 2.6.2):
+    a result computed by another release keeps that release as its ``source``, and the
+    export by this one goes to ``history``. A result of this release is left as
+    :func:`to_xarray` made it (``source`` = this release, no ``history``).
+
+    Parameters
+    ----------
+    dataset : xarray.Dataset
+        From :func:`to_xarray`; changed in place.
+    computed_by : str or None
+        Release recorded in the result folder's manifest (None: unknown, unchanged).
+
+    Returns
+    -------
+    xarray.Dataset
+        `dataset`.
+
+    References
+    ----------
+    Eaton, B. et al. (2022). NetCDF Climate and Forecast (CF) Metadata Conventions,
+    version 1.10, section 2.6.2 (description of file contents: ``source``, ``history``).
+    """
+    from . import __version__
+
+    if computed_by is not None and computed_by != __version__:
+        dataset.attrs["source"] = f"fluxpart {computed_by}"
+        dataset.attrs["history"] = (f"computed by fluxpart {computed_by}; exported to "
+                                    f"CF-1.10 NetCDF by fluxpart {__version__}")
+    return dataset
+
+
 def write_netcdf(result, path) -> Path:
     """Write :func:`to_xarray` of `result` to the NetCDF file `path` (atomically).
 
@@ -380,6 +428,8 @@ def write_netcdf(result, path) -> Path:
     _check_target(path, result.provenance, directory)
     started = time.time()
     dataset = to_xarray(result)
+    if directory is not None:
+        _credit(dataset, _computed_by(directory))
     engine = _engine()
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
