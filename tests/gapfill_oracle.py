@@ -23,7 +23,7 @@ driver gaps (Tair, VPD, Tsoil) are interpolated linearly, gap by gap.
 import numpy as np
 import pandas as pd
 
-__all__ = ["oracle_fill", "oracle_fill_drivers", "oracle_fill_marginal"]
+__all__ = ["oracle_fill", "oracle_fill_drivers", "oracle_fill_marginal", "oracle_local_linear"]
 
 
 def _spacing_minutes(index):
