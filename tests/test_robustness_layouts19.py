@@ -21,6 +21,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
+from test_robustness_layouts18 import _tower as _tower_records
 
 from fluxpart.batch import read_sites_file
 from fluxpart.errors import ConfigError, ImplausibleValueError, InputFileError, MissingColumnError
@@ -30,19 +31,9 @@ MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
 
 
 def _tower(periods=48 * 10, seed=5):
-    """Invented half-hourly tower records (known truth for the reader)."""
-    starts = pd.date_range("2021-06-01 00:00", periods=periods, freq="30min")
-    rng = np.random.default_rng(seed)
-    hour = starts.hour + starts.minute / 60
-    day = np.clip(np.sin((hour - 6) / 12 * np.pi), 0, None)
-    return starts, pd.DataFrame({
-        "stamp": (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M"),
-        "fc": np.round(3 - 15 * day + rng.normal(0, 1.5, periods), 3),
-        "us": np.round(rng.uniform(0.05, 0.8, periods), 3),
-        "sw": np.round(800 * day, 1),
-        "ta": np.round(14 + 8 * day, 2),
-        "vpd": np.round(2 + 14 * day, 2),
-    })
+    """Invented half-hourly tower records (known truth for the reader): round
+    layouts18's, ten days."""
+    return _tower_records(periods, seed)
 
 
 def _read(paths, columns=MAPPING, **kwargs):
