@@ -113,6 +113,17 @@ MIN_LATITUDE_ERROR = 10.0
 #: Fewest sunlit months with a sunrise and a sunset for the latitude to be judged [1];
 #: our choice: a third of a year shows the seasonal course of day length.
 MIN_LATITUDE_MONTHS = 4
+#: Largest distance of a one- or two-month shift from a multiple of 30 min for it to be
+#: read as a clock step [min]; 10 min, our choice: a third of a half-hour record, the
+#: resolution of the monthly estimates plus their cloud scatter (a few minutes on correct
+#: sites), well under the 30 min between the steps clock settings come in.
+STEP_TOLERANCE = 10.0
+#: Scaled median absolute deviations of the other months' shifts by which a one- or
+#: two-month shift must stand out [1]; 6, our choice: a departure of six robust standard
+#: deviations has a chance far below one in a thousand site-years under Gaussian scatter
+#: (common practice for robust outlier rules), and the threshold of
+#: :func:`shift_threshold_minutes` applies as well.
+SHORT_RUN_ROBUST_SIGMAS = 6.0
 _DAYLIGHT_SAVING_STEP = 60.0      # minutes: the daylight-saving change of the clock
 
 
@@ -700,6 +711,9 @@ def _daylight_saving(used: pd.DataFrame):
 def _shifted_run(used: pd.DataFrame, threshold: float):
     """First and last month and size of a run of 3+ consecutive months shifted alike.
 
+    Where there is none, one or two months off by a clock step (see
+    :func:`_short_shifted_run`).
+
     Only months with a sunrise and a sunset count: under the midnight sun the low sun
     circles the horizon, and a tilted sensor moves both the peak and the edges.
     """
@@ -730,7 +744,45 @@ def _shifted_run(used: pd.DataFrame, threshold: float):
             if np.ptp(values) <= 2.0 * max(10.0, 0.3 * abs(size)):
                 return used.index[start], used.index[i - 1], size
         start = i
-    return None
+    return _short_shifted_run(used, off, peak, months, threshold)
+
+
+def _short_shifted_run(used: pd.DataFrame, off: np.ndarray, peak: np.ndarray, months,
+                       threshold: float):
+    """First and last month and size of one or two months off by a clock step.
+
+    A logger clock set to another time for one monthly file (local civil time, UTC, a
+    neighbouring zone) moves that month's sunrise, noon and sunset alike by the step, in
+    the sizes clock settings come in: whole or half hours (time zones; Iqbal 1983,
+    ch. 1 (m)) or one record (a stamp convention). Clouds move a month's estimate by a
+    few minutes only, and a tilted or shaded sensor moves every month alike. Named where
+    at most two months (consecutive where two) are off (peak and edges agreeing, day
+    length kept: see :func:`_shifted_run`), they lie within :data:`STEP_TOLERANCE`
+    minutes of a multiple of 30 min and differ from the median of the other months by
+    more than :data:`SHORT_RUN_ROBUST_SIGMAS` scaled median absolute deviations of
+    those months, whose own median stays within half the threshold (a clock on time).
+    """
+    where = np.flatnonzero(off)
+    if where.size == 0 or where.size > 2 or len(peak) - where.size < MIN_LATITUDE_MONTHS:
+        return None
+    if where.size == 2 and (months[where[1]] - months[where[0]]).n != 1:
+        return None
+    values = peak[where]
+    if where.size == 2 and np.sign(values[0]) != np.sign(values[1]):
+        return None
+    rest = np.delete(peak, where)
+    rest = rest[np.isfinite(rest)]
+    centre = float(np.median(rest))
+    scatter = float(1.4826 * np.median(np.abs(rest - centre)))
+    if abs(centre) >= threshold / 2.0:
+        return None
+    size = float(np.median(values))
+    step = 30.0 * round(size / 30.0)
+    if (step == 0.0 or np.any(np.abs(values - step) > STEP_TOLERANCE)
+            or np.any(np.abs(values - centre) < max(threshold, SHORT_RUN_ROBUST_SIGMAS
+                                                    * scatter))):
+        return None
+    return used.index[where[0]], used.index[where[-1]], size
 
 
 def _one_block(inside: set, outside: set) -> bool:
@@ -924,8 +976,10 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
             notes = [n for n in notes if "tilted or partly shaded" not in n]
             status = "shifted"
             direction = "later" if size > 0 else "earlier"
+            period = (f"in {first:%Y-%m}" if first == last
+                      else f"from {first:%Y-%m} to {last:%Y-%m}")
             problems.append(
-                f"clock: from {first:%Y-%m} to {last:%Y-%m} measured Rg comes {abs(size):.0f} "
+                f"clock: {period} measured Rg comes {abs(size):.0f} "
                 f"min {direction} than the sun (peak and rise and fall agree), {rest_text}: the "
                 "logger clock was off in that period; correct those stamps")
     if status == "consistent" and hemisphere == "mismatch":

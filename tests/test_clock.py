@@ -389,3 +389,37 @@ def test_sensor_shaded_in_summer_mornings_is_not_a_wrong_latitude(elevation):
     # the same sensor at a latitude 19° off is still called wrong where nothing shades it
     clear = synthetic_rg(48.0, 11.0, 1.0, cloudiness="moderate", seed=3)
     assert _check(clear, 29.0, 11.0, 1.0, 30).status == "latitude"
+
+
+@pytest.mark.parametrize("latitude, longitude, utc_offset, interval, month, shift", [
+    (45.0, 10.0, 1.0, 30, 7, 60.0),       # one monthly file in civil summer time
+    (-35.3, 149.1, 10.0, 60, 1, -60.0),   # a southern January file an hour early, hourly
+    (65.0, 25.0, 2.0, 30, 4, 120.0),      # an April file left on another zone's clock
+])
+def test_clock_off_for_one_month_only_is_named(latitude, longitude, utc_offset, interval, month,
+                                               shift):
+    """One month's stamps off by a clock step (a logger reset to another time for one
+    monthly file): the month is named. The shift of Rg against pvlib's sun (NREL SPA) is
+    the known truth; before, only runs of three months or more were named and such a
+    month passed the check (the example with July an hour late: daytime GPP -6.4 g C m-2,
+    named only by Rg above the potential radiation)."""
+    on_time = synthetic_rg(latitude, longitude, utc_offset, interval_minutes=interval, seed=3)
+    off = synthetic_rg(latitude, longitude, utc_offset, interval_minutes=interval, seed=3,
+                       clock_shift_minutes=shift)
+    rg = on_time.where(on_time.index.month != month, off)
+    verdict = _check(rg, latitude, longitude, utc_offset, interval)
+    assert verdict.status == "shifted", verdict.problems
+    assert f"in 2021-{month:02d} measured Rg comes" in verdict.problems[0]
+    assert ("later" if shift > 0 else "earlier") in verdict.problems[0]
+    # the same record on time raises nothing
+    assert _check(on_time, latitude, longitude, utc_offset, interval).problems == ()
+
+
+def test_one_month_off_by_a_non_clock_step_is_not_named():
+    """A single month whose Rg is 45 min later (no zone, daylight-saving or record step;
+    Iqbal 1983, ch. 1 (m): zones differ by whole or half hours) is not read as a clock
+    reset: the short-run rule asks for a step of a multiple of 30 min."""
+    on_time = synthetic_rg(45.0, 10.0, 1.0, interval_minutes=30, seed=3)
+    off = synthetic_rg(45.0, 10.0, 1.0, interval_minutes=30, seed=3, clock_shift_minutes=45.0)
+    rg = on_time.where(on_time.index.month != 7, off)
+    assert _check(rg, 45.0, 10.0, 1.0, 30).problems == ()
