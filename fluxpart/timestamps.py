@@ -390,6 +390,30 @@ _NUMERIC_CLOCKS = (
 )
 
 
+def _summary_lines(text: pd.Series, failed: np.ndarray) -> str:
+    """The cause where every stamp that fails stands after the last one that parses and
+    holds a word without digits ("mean", "Total", "SUM"): a spreadsheet's summary lines
+    under the records, whose values are statistics of the column, not a record. Else ''.
+
+    References
+    ----------
+    Spreadsheets write a column's statistics in a row under its values (AVERAGE, SUM;
+    common practice).
+    """
+    if failed.all() or not failed.any():
+        return ""
+    where = np.flatnonzero(failed)
+    if where[0] < np.flatnonzero(~failed)[-1]:
+        return ""
+    words = text.iloc[where].str.strip()
+    if not words.str.fullmatch(r"[^\W\d_][^\d]*").all():
+        return ""
+    shown = ", ".join(repr(word) for word in dict.fromkeys(words))
+    return (f"{len(where)} line(s) after the last record ({shown}) are a summary (a "
+            "spreadsheet's statistics under the records), not records: delete them in a "
+            "copy of the file")
+
+
 def _numeric_clock(text: pd.Series) -> str:
     """Name a column of plain numbers that count time (Unix time, spreadsheet days), or "".
 
@@ -745,6 +769,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = (f"; if the file has {'a units line' if skip == 1 else f'{skip} lines'} "
                     f"{'' if skip == 1 else '(units, processing) '}under the header, set "
                     f"[input] rows_after_header = {skip}")
+        elif _summary_lines(text, failed):
+            hint = "; " + _summary_lines(text, failed)
         elif _NO_DATE.fullmatch(text.iloc[first]) and not failed.all():
             # a record whose stamp is empty or a bare number ("-9999"): a row written
             # while the logger had no clock, or a missing code in the time column

@@ -1,0 +1,153 @@
+"""Layouts of the layouts20 round: files saved from spreadsheets and database exports (a
+summary line under the records, a header written again in capitals or in quotes, a
+header naming a column the records do not hold).
+
+Outside facts, each named beside its check: spreadsheets write a column's statistics in a
+row under its values (AVERAGE, SUM; common practice); SQL identifiers are case-insensitive
+unless quoted (ISO/IEC 9075 (m)), so a database export may write its header in capitals;
+RFC 4180, section 2 (m): a field may be enclosed in double quotes or not, the same field
+either way, and each line should hold the same number of fields as the header.
+"""
+
+import csv
+
+import numpy as np
+import pandas as pd
+import pytest
+from test_robustness_layouts18 import _tower as _tower_records
+
+from fluxpart.errors import InputFileError, TimestampError
+from fluxpart.io import read_table
+
+MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+
+
+def _tower(periods=48 * 10, seed=6):
+    """Invented half-hourly tower records (known truth for the reader): round
+    layouts18's, ten days."""
+    return _tower_records(periods, seed)
+
+
+def _read(paths, columns=MAPPING, **kwargs):
+    return read_table(paths, columns=columns, time_column="stamp",
+                      time_format="%Y-%m-%d %H:%M", time_marks="end", **kwargs)
+
+
+@pytest.mark.parametrize("words", [["mean"], ["Total"], ["AVERAGE", "SUM"]])
+def test_summary_lines_under_the_records_are_named(tmp_path, words):
+    """A table saved from a spreadsheet with its statistics under the records (common
+    practice): the words in the stamp column were "a stamp that does not parse", naming
+    no cause. Now named as a summary with the fix; still refused (its numbers are no
+    record)."""
+    _, records = _tower()
+    text = records.to_csv(index=False)
+    text += "".join(f"{word},1.5,0.3,400.0,18.0,5.0\n" for word in words)
+    (tmp_path / "sheet.csv").write_text(text)
+    with pytest.raises(TimestampError) as caught:
+        _read(tmp_path / "sheet.csv")
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    assert f"line {len(records) + 2}" in message
+    assert f"{len(words)} line(s) after the last record" in message
+    assert all(repr(word) in message for word in words)
+    assert "are a summary" in message
+
+
+def test_a_word_among_the_records_is_no_summary(tmp_path):
+    """A word in the middle of the records is not a summary under them: not named as
+    one (the same refusal as before)."""
+    _, records = _tower()
+    frame = records.astype(object)
+    frame.loc[100, "stamp"] = "mean"
+    (tmp_path / "mid.csv").write_text(frame.to_csv(index=False))
+    with pytest.raises(TimestampError) as caught:
+        _read(tmp_path / "mid.csv")
+    assert "line 102" in str(caught.value)
+    assert "summary" not in str(caught.value)
+
+
+@pytest.mark.parametrize("written", ["upper", "quoted"])
+def test_a_header_written_again_in_capitals_or_quotes_is_a_repeated_header(tmp_path,
+                                                                          written):
+    """The header line written again among the records in capitals (SQL names are
+    case-insensitive, ISO/IEC 9075 (m)) or with its names quoted (the same fields, RFC
+    4180 (m)): named "a header line with other names or another order" (quoted), or as a
+    stamp 'STAMP' that does not parse (capitals). Now named as the header repeated."""
+    _, records = _tower()
+    header, *lines = records.to_csv(index=False).splitlines()
+    again = (header.upper() if written == "upper"
+             else ",".join(f'"{name}"' for name in header.split(",")))
+    text = "\n".join([header, *lines[:200], again, *lines[200:]]) + "\n"
+    (tmp_path / "joined.csv").write_text(text)
+    with pytest.raises(InputFileError) as caught:
+        _read(tmp_path / "joined.csv")
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    assert "line 202 repeats the header line" in message
+    assert "other names" not in message
+
+
+def test_a_header_of_other_names_is_still_named_as_changed(tmp_path):
+    """A header line with a column renamed mid-file keeps its own refusal."""
+    _, records = _tower()
+    header, *lines = records.to_csv(index=False).splitlines()
+    text = "\n".join([header, *lines[:200], header.replace("vpd", "vpd_hpa"),
+                      *lines[200:]]) + "\n"
+    (tmp_path / "changed.csv").write_text(text)
+    with pytest.raises(InputFileError, match="line 202 is a header line with other names"):
+        _read(tmp_path / "changed.csv")
+
+
+@pytest.mark.parametrize("where", ["end", "front"])
+def test_a_header_naming_a_column_no_record_holds(tmp_path, where):
+    """Every record has one field fewer than the header (RFC 4180 (m): each line should
+    hold the header's number of fields). Named before as a logger program that removed a
+    column mid-file, with the fix "split the file at line 2", which leaves the header
+    and its records as they were. Now named as the header and the records disagreeing
+    throughout; still refused (which column they lack cannot be told: a name at the
+    front read as missing at the end would shift every column)."""
+    _, records = _tower()
+    header, *lines = records.to_csv(index=False).splitlines()
+    header = header + ",comment" if where == "end" else "id," + header
+    (tmp_path / "named.csv").write_text("\n".join([header, *lines]) + "\n")
+    with pytest.raises(InputFileError) as caught:
+        _read(tmp_path / "named.csv")
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    assert f"every record (line 2 to the end, {len(lines)} lines) has 6 fields" in message
+    assert "the header names more columns than the records hold" in message
+    assert "Split the file" not in message
+
+
+def test_a_column_removed_mid_file_keeps_its_split(tmp_path):
+    """A logger program that removed a column mid-file (records of 6 fields, then of 5)
+    keeps the fix of splitting the file where it changed."""
+    _, records = _tower()
+    header, *lines = records.to_csv(index=False).splitlines()
+    cut = [line.rsplit(",", 1)[0] for line in lines[200:]]
+    (tmp_path / "removed.csv").write_text("\n".join([header, *lines[:200], *cut]) + "\n")
+    with pytest.raises(InputFileError, match="Split the file at line 202"):
+        _read(tmp_path / "removed.csv")
+
+
+def test_database_export_layouts_read_as_written(tmp_path):
+    """A database export: every field quoted (RFC 4180 (m): the same fields), names in
+    capitals, stamps with fractional seconds, NULL for no value (declared as missing).
+    Known-truth recovery on invented records: values and interval starts as written."""
+    starts, records = _tower()
+    frame = records.copy()
+    frame.columns = [name.upper() for name in frame.columns]
+    frame["STAMP"] = (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M:%S.000")
+    frame = frame.astype(object)
+    frame.loc[3, "FC"] = "NULL"
+    (tmp_path / "db.csv").write_text(frame.to_csv(index=False, quoting=csv.QUOTE_ALL))
+    read, report = read_table(
+        tmp_path / "db.csv", columns={key: name.upper() for key, name in MAPPING.items()},
+        time_column="STAMP", time_format="%Y-%m-%d %H:%M:%S.%f", time_marks="end",
+        missing=["NULL"])
+    assert list(read.index) == list(starts)
+    expected = records["fc"].to_numpy(dtype=float).copy()
+    expected[3] = np.nan
+    np.testing.assert_array_equal(read["nee"].to_numpy(), expected)
+    np.testing.assert_array_equal(read["rg"].to_numpy(), records["sw"].to_numpy())
+    assert report.warnings == ()
