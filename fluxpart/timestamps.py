@@ -444,6 +444,36 @@ def _numeric_clock(text: pd.Series) -> str:
     return ""
 
 
+def _serial_date_column(text: pd.Series, time_columns) -> str:
+    """Name a date column of spreadsheet day numbers beside a time column ("44348 0030":
+    a sheet's date cells saved as numbers), or "".
+
+    The test: several time columns, and the first field of every joined stamp a whole
+    number of days in the plausible range of :data:`_NUMERIC_CLOCKS` (1971-2100).
+
+    References
+    ----------
+    Excel and LibreOffice count days from 1899-12-30 for dates after 28 February 1900
+    (Excel's serial 60 is the 29 February 1900 that never was, so its day 1 is
+    1900-01-01 and the count agrees with an epoch of 1899-12-30 from day 61 on;
+    Microsoft documentation of the 1900 date system (m)).
+    """
+    if isinstance(time_columns, str) or len(time_columns) < 2:
+        return ""
+    first = text.str.strip().str.split(n=1).str[0]
+    numbers = pd.to_numeric(first, errors="coerce").to_numpy(dtype=float)
+    if numbers.size == 0 or not np.isfinite(numbers).all():
+        return ""
+    if (numbers != np.round(numbers)).any() or numbers.min() < 26000 or numbers.max() > 73051:
+        return ""
+    day = pd.Timestamp("1899-12-30") + pd.Timedelta(days=float(numbers[0]))
+    return (f"the date field {first.iloc[0]!r} is a spreadsheet day number (days since "
+            f"1899-12-30, as Excel and LibreOffice count; {first.iloc[0]!r} is "
+            f"{day:%Y-%m-%d}), which fluxpart does not read: format the date column as "
+            "yyyy-mm-dd in a copy of the file before saving it as CSV, and set [input] "
+            "time_format to match")
+
+
 def _date_part(time_format: str) -> str | None:
     """The date fields of a "date, separator, time" format ("%Y-%m-%d" of "%Y-%m-%d %H:%M"),
     or None where the format has no such split (compact or time-first formats)."""
@@ -801,6 +831,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "and with [input] time_zone = \"Area/City\"")
         elif _numeric_clock(text):
             hint = "; " + _numeric_clock(text)
+        elif _serial_date_column(text, time_columns):
+            hint = "; " + _serial_date_column(text, time_columns)
         elif _finer_stamp(text.iloc[first], time_format):
             hint = "; " + _finer_stamp(text.iloc[first], time_format)
         elif _fraction_hint(text[failed], time_format):

@@ -151,3 +151,26 @@ def test_database_export_layouts_read_as_written(tmp_path):
     np.testing.assert_array_equal(read["nee"].to_numpy(), expected)
     np.testing.assert_array_equal(read["rg"].to_numpy(), records["sw"].to_numpy())
     assert report.warnings == ()
+
+
+def test_a_date_column_of_spreadsheet_day_numbers_is_named(tmp_path):
+    """A date column saved from a spreadsheet as its day numbers beside an HHMM time
+    column: Excel's serial 44197 is 2021-01-01 (days since 1899-12-30 from 1 March 1900
+    on, the count that absorbs Excel's nonexistent 29 February 1900; Microsoft's 1900
+    date system (m)), so 1 June 2021 is 44197 + 151. Named before only as "does not
+    match"; now named as day numbers with the date they stand for. Still refused (the
+    sheet's clock is the user's word)."""
+    starts, records = _tower()
+    ends = starts + pd.Timedelta(minutes=30)
+    frame = records.drop(columns="stamp")
+    frame.insert(0, "TIME", ends.hour * 100 + ends.minute)
+    frame.insert(0, "DATE", 44197 + ends.day_of_year - 1)
+    (tmp_path / "serial.csv").write_text(frame.to_csv(index=False))
+    assert frame["DATE"].iloc[0] == 44197 + 151                   # 2021-06-01, by the count
+    with pytest.raises(TimestampError) as caught:
+        read_table(tmp_path / "serial.csv", columns=MAPPING, time_column=["DATE", "TIME"],
+                   time_format="%Y-%m-%d %H%M", time_marks="end")
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    assert "the date field '44348' is a spreadsheet day number" in message
+    assert "'44348' is 2021-06-01" in message
