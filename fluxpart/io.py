@@ -2810,6 +2810,11 @@ def _plain_numbers(text: pd.Series, decimal: str):
     return values, empty
 
 
+#: A number in parentheses or with a trailing minus sign: accounting and business number
+#: formats' negatives (spreadsheet number formats; COBOL-style reports, common practice).
+_ACCOUNTING_NEGATIVE = re.compile(r"\(\s*\d[\d.,]*\s*\)|\d[\d.,]*-")
+
+
 def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: str,
              source: str, lines: np.ndarray, comma_file: bool = False
              ) -> tuple[np.ndarray, int, np.ndarray]:
@@ -2864,6 +2869,14 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
             # listed as a missing code it would blank the whole column
             hint = ("; it is a number with a Fortran double-precision exponent (D for E: "
                     "1.5D+02 is 150), which is not read: write E for D in a copy of the file")
+        elif _ACCOUNTING_NEGATIVE.fullmatch(cell) and pd.notna(pd.to_numeric(
+                cell.strip("()-").replace(",", "." if decimal == "," else ","),
+                errors="coerce")):
+            # listed as a missing code it would blank every negative value (one of them,
+            # and the next refusal names the next); read as negative it would be a guess
+            hint = ("; it is a negative number in an accounting or business format ("
+                    "'(1.5)' or '1.5-' for -1.5, a spreadsheet's or report's number format): "
+                    "write negative numbers with a leading minus sign in a copy of the file")
         elif name.startswith("nee_flag"):
             # a missing flag rejects nothing, so "add it to missing" would keep bad records
             hint = ("; site flags must be numbers (a record is kept where its flag is in "

@@ -54,6 +54,9 @@ _OFFSET_AT_END = re.compile(r"(?:Z|[+-]\d{2}:?\d{2})$")
 #: A stamp cell that holds no date: empty, a negative number or one of at most five
 #: digits (a missing code such as -9999 in the time column)
 _NO_DATE = re.compile(r"\s*(?:-\d+(?:[.,]\d*)?|\+?\d{1,5}(?:[.,]\d*)?)?\s*")
+#: A database's zero date ("0000-00-00 00:00:00"), MySQL's stand-in for no date (MySQL
+#: reference manual, "The DATE, DATETIME, and TIMESTAMP Types" (m)).
+_ZERO_DATE = re.compile(r"\s*0{2,4}[-./]00?[-./]0{2,4}(?!\d)")
 _HOUR_24 = (
     (re.compile(r"(?<!\d)24:00(:00)?(?!\d)"), lambda m: "00:00" + (m[1] or "")),
     (re.compile(r"(?<!\d)24(00)$"), lambda m: "00" + m[1]),
@@ -806,6 +809,20 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             # while the logger had no clock, or a missing code in the time column
             hint = ("; a record without a date and time (an empty stamp or a missing "
                     "code): give it its stamp or delete that line in a copy of the file")
+        elif _ZERO_DATE.match(text.iloc[first]) and not failed.all():
+            hint = ("; a record without a date and time (a database's zero date for no "
+                    "date): give it its stamp or delete that line in a copy of the file")
+        elif text[failed].str.strip().str.fullmatch(r'="[^"]*"').all():
+            hint = ("; the stamps are spreadsheet formulas (=\"...\", written to keep a "
+                    "cell as text), not stamps: write them without the = and the quotes in a "
+                    "copy of the file (the sheet's values, not its formulas)")
+        elif (not isinstance(time_columns, str) and len(time_columns) > 1
+              and "%H:%M" in time_format
+              and text[failed].str.strip().str.fullmatch(r".*\s\d{1,4}").all()):
+            # hours and minutes as one integer (0, 30, 100, ..., 2330): a logger's or a
+            # spreadsheet's time column of HHMM numbers
+            hint = ("; the time field holds hours and minutes as one number (HHMM: 30 for "
+                    "00:30, 1330 for 13:30): write %H%M for %H:%M in time_format")
         elif "%j" in time_format and text[failed].str.contains(
                 r"(?<![\d.,])(?:000|0)(?![\d.,])", regex=True).all():
             hint = ("; its day of year is 0: %j counts from 001 (1 January); a logger "

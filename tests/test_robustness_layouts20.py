@@ -174,3 +174,65 @@ def test_a_date_column_of_spreadsheet_day_numbers_is_named(tmp_path):
     assert len(message.splitlines()) == 1
     assert "the date field '44348' is a spreadsheet day number" in message
     assert "'44348' is 2021-06-01" in message
+
+
+@pytest.mark.parametrize("form", ["parentheses", "trailing"])
+def test_accounting_negatives_are_named_not_offered_as_missing_codes(tmp_path, form):
+    """Negative NEE in an accounting format, '(3.1)' or '3.1-' for -3.1 (spreadsheet
+    number formats; business reports, common practice). The refusal offered "if '(3.1)'
+    marks missing data, add it to [input] missing", a fix that drops the negative values
+    (the daytime uptake). Now named as negative numbers with the fix; still refused."""
+    _, records = _tower()
+    frame = records.astype(object)
+    frame["fc"] = [(f"({-v})" if form == "parentheses" else f"{-v}-") if v < 0 else str(v)
+                   for v in records["fc"]]
+    (tmp_path / "report.csv").write_text(frame.to_csv(index=False))
+    with pytest.raises(InputFileError) as caught:
+        _read(tmp_path / "report.csv")
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    assert f"{int((records['fc'] < 0).sum())} such cell(s)" in message
+    assert "a negative number in an accounting or business format" in message
+    assert "add it to [input] missing" not in message
+
+
+def test_database_zero_date_is_named_as_a_record_without_a_date(tmp_path):
+    """A database's zero date '0000-00-00 00:00' (MySQL's stand-in for no date, MySQL
+    reference manual (m)) in one record: named as a record without a date (was "does not
+    match" alone)."""
+    _, records = _tower()
+    frame = records.astype(object)
+    frame.loc[10, "stamp"] = "0000-00-00 00:00"
+    (tmp_path / "zero.csv").write_text(frame.to_csv(index=False))
+    with pytest.raises(TimestampError, match=r"line 12 .*a database's zero date"):
+        _read(tmp_path / "zero.csv")
+
+
+def test_stamps_written_as_spreadsheet_text_formulas_are_named(tmp_path):
+    """Stamps written as ="2021-06-01 00:30" (a spreadsheet formula that keeps a cell as
+    text, common practice in exports meant for Excel): named as formulas with the fix."""
+    _, records = _tower()
+    header, *lines = records.to_csv(index=False).splitlines()
+    lines = ['="' + line.split(",", 1)[0] + '",' + line.split(",", 1)[1] for line in lines]
+    (tmp_path / "formulas.csv").write_text("\n".join([header, *lines]) + "\n")
+    with pytest.raises(TimestampError, match=r"line 2 .*the stamps are spreadsheet formulas"):
+        _read(tmp_path / "formulas.csv")
+
+
+def test_an_hhmm_time_column_under_a_colon_format_names_the_format(tmp_path):
+    """A DATE column and a TIME column of HHMM integers (0, 30, 100, ..., 2330, as
+    loggers write them; common practice) read under "%Y-%m-%d %H:%M": named with the
+    format that reads them, which then reads the record as written (known truth)."""
+    starts, records = _tower()
+    ends = starts + pd.Timedelta(minutes=30)
+    frame = records.drop(columns="stamp")
+    frame.insert(0, "TIME", ends.hour * 100 + ends.minute)
+    frame.insert(0, "DATE", ends.strftime("%Y-%m-%d"))
+    (tmp_path / "hhmm.csv").write_text(frame.to_csv(index=False))
+    kwargs = dict(columns=MAPPING, time_column=["DATE", "TIME"], time_marks="end")
+    with pytest.raises(TimestampError, match=r"write %H%M for %H:%M in time_format"):
+        read_table(tmp_path / "hhmm.csv", time_format="%Y-%m-%d %H:%M", **kwargs)
+    read, report = read_table(tmp_path / "hhmm.csv", time_format="%Y-%m-%d %H%M", **kwargs)
+    assert list(read.index) == list(starts)
+    np.testing.assert_array_equal(read["nee"].to_numpy(), records["fc"].to_numpy())
+    assert report.warnings == ()
