@@ -16,7 +16,7 @@ import pandas as pd
 import pytest
 from test_robustness_layouts18 import _tower as _tower_records
 
-from fluxpart.errors import InputFileError, TimestampError
+from fluxpart.errors import ImplausibleValueError, InputFileError, TimestampError
 from fluxpart.io import read_table
 
 MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
@@ -236,3 +236,28 @@ def test_an_hhmm_time_column_under_a_colon_format_names_the_format(tmp_path):
     assert list(read.index) == list(starts)
     np.testing.assert_array_equal(read["nee"].to_numpy(), records["fc"].to_numpy())
     assert report.warnings == ()
+
+
+def test_exchanged_vpd_and_tair_columns_are_not_offered_pa(tmp_path):
+    """A file whose data lines hold VPD and air temperature in the other order than its
+    header (a column moved without its name): VPD then reads 14-22 "hPa" at tair 2-16 °C,
+    about twice the saturation vapour pressure (Magnus form: 7.06 hPa at 2 °C, 18.2 hPa
+    at 16 °C (m)). The refusal offered "the values look like 'Pa'", a fix that reads VPD
+    a hundredth of the file's (relative humidity near 100 % throughout) and leaves the
+    exchange in place. Now the mapping is named; Pa read as hPa (100 times the limit)
+    keeps its fix."""
+    starts, records = _tower()
+    header = ",".join(records.columns)
+    body = records[["stamp", "fc", "us", "sw", "vpd", "ta"]].to_csv(index=False, header=False)
+    (tmp_path / "moved.csv").write_text(header + "\n" + body)
+    with pytest.raises(ImplausibleValueError) as caught:
+        _read(tmp_path / "moved.csv")
+    message = str(caught.value)
+    assert "exceed the saturation vapour pressure" in message
+    assert "look like 'Pa'" not in message
+    assert "check the column mapping" in message
+    pascal = records.copy()
+    pascal["vpd"] = records["vpd"] * 100.0                       # 1 hPa = 100 Pa (SI)
+    (tmp_path / "pascal.csv").write_text(pascal.to_csv(index=False))
+    with pytest.raises(ImplausibleValueError, match="the values look like 'Pa'"):
+        _read(tmp_path / "pascal.csv")
