@@ -57,6 +57,10 @@ _NO_DATE = re.compile(r"\s*(?:-\d+(?:[.,]\d*)?|\+?\d{1,5}(?:[.,]\d*)?)?\s*")
 #: A database's zero date ("0000-00-00 00:00:00"), MySQL's stand-in for no date (MySQL
 #: reference manual, "The DATE, DATETIME, and TIMESTAMP Types" (m)).
 _ZERO_DATE = re.compile(r"\s*0{2,4}[-./]00?[-./]0{2,4}(?!\d)")
+#: Words for no value written in a time column: SQL's NULL and its dump form \N (MySQL
+#: and PostgreSQL text exports (m)), NaN/NaT/NA/None of numerical and statistics
+#: programs, #N/A of spreadsheets (common practice).
+_NULL_STAMP = re.compile(r"(?i)\s*(?:null|\\n|none|nan|nat|na|n/a|#n/a|<na>)\s*")
 _HOUR_24 = (
     (re.compile(r"(?<!\d)24:00(:00)?(?!\d)"), lambda m: "00:00" + (m[1] or "")),
     (re.compile(r"(?<!\d)24(00)$"), lambda m: "00" + m[1]),
@@ -802,6 +806,10 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = (f"; if the file has {'a units line' if skip == 1 else f'{skip} lines'} "
                     f"{'' if skip == 1 else '(units, processing) '}under the header, set "
                     f"[input] rows_after_header = {skip}")
+        elif _NULL_STAMP.fullmatch(text.iloc[first]) and not failed.all():
+            # a database's or a statistics program's word for no value in the time column
+            hint = ("; a record without a date and time (an empty stamp or a missing "
+                    "code): give it its stamp or delete that line in a copy of the file")
         elif _summary_lines(text, failed):
             hint = "; " + _summary_lines(text, failed)
         elif _NO_DATE.fullmatch(text.iloc[first]) and not failed.all():

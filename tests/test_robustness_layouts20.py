@@ -261,3 +261,20 @@ def test_exchanged_vpd_and_tair_columns_are_not_offered_pa(tmp_path):
     (tmp_path / "pascal.csv").write_text(pascal.to_csv(index=False))
     with pytest.raises(ImplausibleValueError, match="the values look like 'Pa'"):
         _read(tmp_path / "pascal.csv")
+
+
+@pytest.mark.parametrize("word", ["NULL", "\\N", "NaT"])
+def test_a_null_word_in_the_time_column_is_named_as_a_record_without_a_date(tmp_path, word):
+    """SQL's NULL and its text-dump form \\N (MySQL and PostgreSQL exports (m)) or
+    pandas' NaT in the time column of one record: named as a record without a date (was
+    "does not match" alone), also as the last line (not a summary)."""
+    _, records = _tower()
+    for row in (30, len(records) - 1):
+        frame = records.astype(object)
+        frame.loc[row, "stamp"] = word
+        (tmp_path / "null.csv").write_text(frame.to_csv(index=False))
+        with pytest.raises(TimestampError) as caught:
+            _read(tmp_path / "null.csv")
+        assert f"line {row + 2} " in str(caught.value)
+        assert "a record without a date and time" in str(caught.value)
+        assert "summary" not in str(caught.value)
