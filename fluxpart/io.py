@@ -1600,7 +1600,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             # matter (_parser_message), not a layout changed mid-file
             changed = (found and (delimiter == _WHITESPACE or delimiter in header_line)
                        and _changed_layout(path, text.splitlines(), int(found.group(2)),
-                                           int(found.group(1)), delimiter))
+                                           int(found.group(1)), delimiter,
+                                           rows_before_header + rows_after_header + 2))
             raise InputFileError(changed or _parser_message(path, delimiter, str(error),
                                                             header_line)) from None
         # a quote opened and never closed: the parser names no line of the file
@@ -1706,17 +1707,30 @@ def _refuse_other_header(path: Path, text: str, text_lines: list, header_at: int
     occurring again (one C pass) in a line holding at least half of the header's names.
     """
     header_line = text_lines[header_at]
-    names = {cell.strip().strip('"').strip() for cell in re.split(r'[,;\t ]', header_line)}
+    ordered = [cell.strip().strip('"').strip().casefold()
+               for cell in re.split(r'[,;\t ]', header_line)]
+    names = set(ordered)
     names.discard("")
     if len(names) < 2:
         return
     longest = max(names, key=len)
-    if len(longest) < 3 or text.count(longest) < 2:
+    # names compared without case: a header written again in capitals (a database
+    # export's) is the same header
+    folded = text.casefold()
+    if len(longest) < 3 or folded.count(longest) < 2:
         return
-    for number, line in enumerate(text_lines[first_data:], first_data):
+    for number, line in enumerate(folded.splitlines()[first_data:], first_data):
         if longest not in line:
             continue
-        cells = {cell.strip().strip('"').strip() for cell in re.split(r'[,;\t ]', line)}
+        line_ordered = [cell.strip().strip('"').strip()
+                        for cell in re.split(r'[,;\t ]', line)]
+        cells = set(line_ordered)
+        if line_ordered == ordered:
+            raise InputFileError(
+                f"input file {str(path)!r}: line {number + 1} repeats the header line "
+                "(quoted or in another case; a logger program restarted, or files joined "
+                "end to end?): in a copy of the file, remove it, or split the file there "
+                "and list the parts in [input] path")
         if len(cells & names) * 2 >= len(names):
             raise InputFileError(
                 f"input file {str(path)!r}: line {number + 1} is a header line with other "
@@ -1873,10 +1887,12 @@ _CHANGED_LAYOUT_LINES = 24
 
 
 def _changed_layout(path: Path, text_lines: list, line: int, width: int,
-                    delimiter: str) -> str:
+                    delimiter: str, first_data: int | None = None) -> str:
     """The refusal where every non-blank line from `line` (1-based) to the end has one
     field count other than the header's `width` (a logger program that added or removed
-    a column and wrote no new header line), else ''."""
+    a column and wrote no new header line), else ''. From the first record on
+    (`first_data`, 1-based), there is no place to split: the header and the records
+    disagree throughout (a name too many or too few in the header)."""
     rest = [candidate for candidate in text_lines[line - 1:] if candidate.strip()]
     if len(rest) < _CHANGED_LAYOUT_LINES:
         return ""
@@ -1885,6 +1901,14 @@ def _changed_layout(path: Path, text_lines: list, line: int, width: int,
         return ""       # mixed counts, or lines of one field (a footer or notes block)
     fields = counts.pop()
     what = "added" if fields > width else "removed"
+    if first_data is not None and line <= first_data:
+        return (f"input file {str(path)!r}: every record (line {line} to the end, "
+                f"{len(rest)} lines) has {fields} fields where the header has {width}: the "
+                f"header names {'fewer' if fields > width else 'more'} columns than the "
+                "records hold (a name added or lost when the header was edited, or a column "
+                "the logger stopped writing?). Which column the records lack cannot be "
+                "told from the file: give the header one name per field of the records in "
+                "a copy of the file")
     return (f"input file {str(path)!r}: every line from line {line} on ({len(rest)} lines) "
             f"has {fields} fields where the header has {width}: a logger program that "
             f"{what} a column and wrote no new header line? Split the file at line {line} in "
@@ -1914,7 +1938,8 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
     inner = [row for row in short if row != last]
     if inner:
         row = inner[0]
-        changed = _changed_layout(path, text_lines, int(lines[row]), width, delimiter)
+        changed = _changed_layout(path, text_lines, int(lines[row]), width, delimiter,
+                                  int(lines[0]))
         if changed:
             raise InputFileError(changed)
         raise InputFileError(
@@ -2785,6 +2810,11 @@ def _plain_numbers(text: pd.Series, decimal: str):
     return values, empty
 
 
+#: A number in parentheses or with a trailing minus sign: accounting and business number
+#: formats' negatives (spreadsheet number formats; COBOL-style reports, common practice).
+_ACCOUNTING_NEGATIVE = re.compile(r"\(\s*\d[\d.,]*\s*\)|\d[\d.,]*-")
+
+
 def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: str,
              source: str, lines: np.ndarray, comma_file: bool = False
              ) -> tuple[np.ndarray, int, np.ndarray]:
@@ -2839,6 +2869,14 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
             # listed as a missing code it would blank the whole column
             hint = ("; it is a number with a Fortran double-precision exponent (D for E: "
                     "1.5D+02 is 150), which is not read: write E for D in a copy of the file")
+        elif _ACCOUNTING_NEGATIVE.fullmatch(cell) and pd.notna(pd.to_numeric(
+                cell.strip("()-").replace(",", "." if decimal == "," else ","),
+                errors="coerce")):
+            # listed as a missing code it would blank every negative value (one of them,
+            # and the next refusal names the next); read as negative it would be a guess
+            hint = ("; it is a negative number in an accounting or business format ("
+                    "'(1.5)' or '1.5-' for -1.5, a spreadsheet's or report's number format): "
+                    "write negative numbers with a leading minus sign in a copy of the file")
         elif name.startswith("nee_flag"):
             # a missing flag rejects nothing, so "add it to missing" would keep bad records
             hint = ("; site flags must be numbers (a record is kept where its flag is in "

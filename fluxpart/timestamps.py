@@ -54,6 +54,13 @@ _OFFSET_AT_END = re.compile(r"(?:Z|[+-]\d{2}:?\d{2})$")
 #: A stamp cell that holds no date: empty, a negative number or one of at most five
 #: digits (a missing code such as -9999 in the time column)
 _NO_DATE = re.compile(r"\s*(?:-\d+(?:[.,]\d*)?|\+?\d{1,5}(?:[.,]\d*)?)?\s*")
+#: A database's zero date ("0000-00-00 00:00:00"), MySQL's stand-in for no date (MySQL
+#: reference manual, "The DATE, DATETIME, and TIMESTAMP Types" (m)).
+_ZERO_DATE = re.compile(r"\s*0{2,4}[-./]00?[-./]0{2,4}(?!\d)")
+#: Words for no value written in a time column: SQL's NULL and its dump form \N (MySQL
+#: and PostgreSQL text exports (m)), NaN/NaT/NA/None of numerical and statistics
+#: programs, #N/A of spreadsheets (common practice).
+_NULL_STAMP = re.compile(r"(?i)\s*(?:null|\\n|none|nan|nat|na|n/a|#n/a|<na>)\s*")
 _HOUR_24 = (
     (re.compile(r"(?<!\d)24:00(:00)?(?!\d)"), lambda m: "00:00" + (m[1] or "")),
     (re.compile(r"(?<!\d)24(00)$"), lambda m: "00" + m[1]),
@@ -390,6 +397,30 @@ _NUMERIC_CLOCKS = (
 )
 
 
+def _summary_lines(text: pd.Series, failed: np.ndarray) -> str:
+    """The cause where every stamp that fails stands after the last one that parses and
+    holds a word without digits ("mean", "Total", "SUM"): a spreadsheet's summary lines
+    under the records, whose values are statistics of the column, not a record. Else ''.
+
+    References
+    ----------
+    Spreadsheets write a column's statistics in a row under its values (AVERAGE, SUM;
+    common practice).
+    """
+    if failed.all() or not failed.any():
+        return ""
+    where = np.flatnonzero(failed)
+    if where[0] < np.flatnonzero(~failed)[-1]:
+        return ""
+    words = text.iloc[where].str.strip()
+    if not words.str.fullmatch(r"[^\W\d_][^\d]*").all():
+        return ""
+    shown = ", ".join(repr(word) for word in dict.fromkeys(words))
+    return (f"{len(where)} line(s) after the last record ({shown}) are a summary (a "
+            "spreadsheet's statistics under the records), not records: delete them in a "
+            "copy of the file")
+
+
 def _numeric_clock(text: pd.Series) -> str:
     """Name a column of plain numbers that count time (Unix time, spreadsheet days), or "".
 
@@ -418,6 +449,36 @@ def _numeric_clock(text: pd.Series) -> str:
                 "as CSV) and set [input] time_format to match"
                 + (", with [input] time_zone = \"UTC\" if you keep UTC" if zone else ""))
     return ""
+
+
+def _serial_date_column(text: pd.Series, time_columns) -> str:
+    """Name a date column of spreadsheet day numbers beside a time column ("44348 0030":
+    a sheet's date cells saved as numbers), or "".
+
+    The test: several time columns, and the first field of every joined stamp a whole
+    number of days in the plausible range of :data:`_NUMERIC_CLOCKS` (1971-2100).
+
+    References
+    ----------
+    Excel and LibreOffice count days from 1899-12-30 for dates after 28 February 1900
+    (Excel's serial 60 is the 29 February 1900 that never was, so its day 1 is
+    1900-01-01 and the count agrees with an epoch of 1899-12-30 from day 61 on;
+    Microsoft documentation of the 1900 date system (m)).
+    """
+    if isinstance(time_columns, str) or len(time_columns) < 2:
+        return ""
+    first = text.str.strip().str.split(n=1).str[0]
+    numbers = pd.to_numeric(first, errors="coerce").to_numpy(dtype=float)
+    if numbers.size == 0 or not np.isfinite(numbers).all():
+        return ""
+    if (numbers != np.round(numbers)).any() or numbers.min() < 26000 or numbers.max() > 73051:
+        return ""
+    day = pd.Timestamp("1899-12-30") + pd.Timedelta(days=float(numbers[0]))
+    return (f"the date field {first.iloc[0]!r} is a spreadsheet day number (days since "
+            f"1899-12-30, as Excel and LibreOffice count; {first.iloc[0]!r} is "
+            f"{day:%Y-%m-%d}), which fluxpart does not read: format the date column as "
+            "yyyy-mm-dd in a copy of the file before saving it as CSV, and set [input] "
+            "time_format to match")
 
 
 def _date_part(time_format: str) -> str | None:
@@ -745,11 +806,31 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = (f"; if the file has {'a units line' if skip == 1 else f'{skip} lines'} "
                     f"{'' if skip == 1 else '(units, processing) '}under the header, set "
                     f"[input] rows_after_header = {skip}")
+        elif _NULL_STAMP.fullmatch(text.iloc[first]) and not failed.all():
+            # a database's or a statistics program's word for no value in the time column
+            hint = ("; a record without a date and time (an empty stamp or a missing "
+                    "code): give it its stamp or delete that line in a copy of the file")
+        elif _summary_lines(text, failed):
+            hint = "; " + _summary_lines(text, failed)
         elif _NO_DATE.fullmatch(text.iloc[first]) and not failed.all():
             # a record whose stamp is empty or a bare number ("-9999"): a row written
             # while the logger had no clock, or a missing code in the time column
             hint = ("; a record without a date and time (an empty stamp or a missing "
                     "code): give it its stamp or delete that line in a copy of the file")
+        elif _ZERO_DATE.match(text.iloc[first]) and not failed.all():
+            hint = ("; a record without a date and time (a database's zero date for no "
+                    "date): give it its stamp or delete that line in a copy of the file")
+        elif text[failed].str.strip().str.fullmatch(r'="[^"]*"').all():
+            hint = ("; the stamps are spreadsheet formulas (=\"...\", written to keep a "
+                    "cell as text), not stamps: write them without the = and the quotes in a "
+                    "copy of the file (the sheet's values, not its formulas)")
+        elif (not isinstance(time_columns, str) and len(time_columns) > 1
+              and "%H:%M" in time_format
+              and text[failed].str.strip().str.fullmatch(r".*\s\d{1,4}").all()):
+            # hours and minutes as one integer (0, 30, 100, ..., 2330): a logger's or a
+            # spreadsheet's time column of HHMM numbers
+            hint = ("; the time field holds hours and minutes as one number (HHMM: 30 for "
+                    "00:30, 1330 for 13:30): write %H%M for %H:%M in time_format")
         elif "%j" in time_format and text[failed].str.contains(
                 r"(?<![\d.,])(?:000|0)(?![\d.,])", regex=True).all():
             hint = ("; its day of year is 0: %j counts from 001 (1 January); a logger "
@@ -775,6 +856,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "and with [input] time_zone = \"Area/City\"")
         elif _numeric_clock(text):
             hint = "; " + _numeric_clock(text)
+        elif _serial_date_column(text, time_columns):
+            hint = "; " + _serial_date_column(text, time_columns)
         elif _finer_stamp(text.iloc[first], time_format):
             hint = "; " + _finer_stamp(text.iloc[first], time_format)
         elif _fraction_hint(text[failed], time_format):

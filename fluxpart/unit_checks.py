@@ -567,10 +567,16 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
     above = vpd[both] > 1.1 * saturation + 1.0
     if above.mean() > IMPLAUSIBLE_SHARE:
         declared_scale = to_canonical(np.array([1.0]), "vpd", declared)[0]
+        # a smaller unit fits where its values stay below the saturation vapour pressure
+        # and do not then stay below 0.1 of it throughout (relative humidity never below
+        # 90 %, the bound of the too-small test below): values a few times the limit (the
+        # VPD and tair columns exchanged) are no Pa read as hPa, 100 times it
         fits = [unit for unit in units_for("vpd")
                 if to_canonical(np.array([1.0]), "vpd", unit)[0] < declared_scale
                 and np.mean(vpd[both] * to_canonical(np.array([1.0]), "vpd", unit)[0]
-                            / declared_scale > 1.1 * saturation + 1.0) <= IMPLAUSIBLE_SHARE]
+                            / declared_scale > 1.1 * saturation + 1.0) <= IMPLAUSIBLE_SHARE
+                and np.percentile(ratio * to_canonical(np.array([1.0]), "vpd", unit)[0]
+                                  / declared_scale, 99) >= 0.1]
         fix = (f"the values look like {fits[0]!r}: set [input.units] vpd = \"{fits[0]}\""
                if fits else "check the column mapping and [input.units] vpd")
         return (f"column {columns['vpd']!r} (vpd, read as {shown!r}): {above.mean():.0%} of "
