@@ -230,6 +230,7 @@ from __future__ import annotations
 
 import argparse
 import dataclasses
+import functools
 import sys
 import time
 from pathlib import Path
@@ -245,8 +246,10 @@ from trial_scoring import (  # noqa: E402
     check_and_run,
     finish,
     fluxpart_cli,
+    fmt,
     misses,
     print_flux_table,
+    site_toml,
 )
 
 GC_PER_UMOL = 12.011e-6  # g C per umol (standard atomic weight of carbon (m))
@@ -676,32 +679,9 @@ def simulate(site: Site, variant=frozenset()):
 # --------------------------------------------------------------------------------------------
 # file layouts
 # --------------------------------------------------------------------------------------------
-def fmt(values, decimals, code):
-    """Numbers as text with a fixed number of decimals; NaN as the missing code."""
-    v = np.asarray(values, float)
-    out = np.char.mod(f"%.{decimals}f", np.nan_to_num(v))
-    return np.where(np.isnan(v), code, out)
 
 
-def toml_site(site: Site, extra_input: str, columns: str, units: str = "",
-              processing: str = ""):
-    units_block = f"\n[input.units]\n{units}" if units else ""
-    return f"""# FICTIONAL site written by tests/benchmarks/trial_ninth.py (invented data)
-[site]
-name = "{site.name}"
-latitude = {site.lat}
-longitude = {site.lon}
-utc_offset = {site.utc_offset}
-canopy = "{site.canopy}"
-
-[input]
-{extra_input}
-[input.columns]
-{columns}{units_block}
-[processing]
-seed = 0
-year_start = "{site.year_start}"
-{processing}"""
+toml_site = functools.partial(site_toml, writer="trial_ninth.py")
 
 
 def to_30min(data: pd.DataFrame) -> pd.DataFrame:

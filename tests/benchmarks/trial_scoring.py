@@ -166,3 +166,33 @@ def finish(rows, out):
         print(summary_cells(r, width) + f" {r['ustar_rel']:+6.0f}")
     print_table(scored)
     return 0
+
+
+def fmt(values, decimals, code):
+    """Numbers as text with a fixed number of decimals; NaN as the missing code."""
+    v = np.asarray(values, float)
+    out = np.char.mod(f"%.{decimals}f", np.nan_to_num(v))
+    return np.where(np.isnan(v), code, out)
+
+
+def site_toml(site, extra_input: str, columns: str, units: str = "", processing: str = "",
+              *, writer: str) -> str:
+    """A trial site's config: `site` has name, lat, lon, utc_offset, canopy and year_start;
+    `writer` is the trial script's file name, written in the header comment."""
+    units_block = f"\n[input.units]\n{units}" if units else ""
+    return f"""# FICTIONAL site written by tests/benchmarks/{writer} (invented data)
+[site]
+name = "{site.name}"
+latitude = {site.lat}
+longitude = {site.lon}
+utc_offset = {site.utc_offset}
+canopy = "{site.canopy}"
+
+[input]
+{extra_input}
+[input.columns]
+{columns}{units_block}
+[processing]
+seed = 0
+year_start = "{site.year_start}"
+{processing}"""

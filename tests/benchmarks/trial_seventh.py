@@ -196,6 +196,7 @@ from __future__ import annotations
 
 import argparse
 import dataclasses
+import functools
 import sys
 from pathlib import Path
 
@@ -209,8 +210,10 @@ from trial_scoring import (  # noqa: E402
     TRUTH_OF,
     check_and_run,
     finish,
+    fmt,
     print_flux_table,
     print_warnings_and_misses,
+    site_toml,
 )
 
 GC_PER_UMOL = 12.011e-6  # g C per umol (standard atomic weight of carbon (m))
@@ -616,31 +619,9 @@ def simulate(site: Site, variant=frozenset()):
 # --------------------------------------------------------------------------------------------
 # file layouts (one per site), each with its TOML
 # --------------------------------------------------------------------------------------------
-def fmt(values, decimals, code):
-    """Numbers as text with a fixed number of decimals; NaN as the missing code."""
-    v = np.asarray(values, float)
-    out = np.char.mod(f"%.{decimals}f", np.nan_to_num(v))
-    return np.where(np.isnan(v), code, out)
 
 
-def toml_site(site: Site, extra_input: str, columns: str, units: str = ""):
-    units_block = f"\n[input.units]\n{units}" if units else ""
-    return f"""# FICTIONAL site written by tests/benchmarks/trial_seventh.py (invented data)
-[site]
-name = "{site.name}"
-latitude = {site.lat}
-longitude = {site.lon}
-utc_offset = {site.utc_offset}
-canopy = "{site.canopy}"
-
-[input]
-{extra_input}
-[input.columns]
-{columns}{units_block}
-[processing]
-seed = 0
-year_start = "{site.year_start}"
-"""
+toml_site = functools.partial(site_toml, writer="trial_seventh.py")
 
 
 def write_site(site: Site, data: pd.DataFrame, truth: pd.DataFrame, folder: Path) -> str:
