@@ -286,6 +286,21 @@ def tair_lag(tair, rh, vpd, interval_minutes: float, columns=None) -> str | None
             "the file")
 
 
+def _sunlit_change_scores(nee, rg, potential, shifts: dict) -> dict:
+    """Per key of `shifts` (key -> shift k in records): (−r, pairs), r the correlation of the
+    change of NEE from record t + k to the next with that of Rg from record t to the next,
+    over the pairs of records with the sun up at t and t + 1."""
+    d_nee, d_rg = np.diff(nee), np.diff(rg)
+    sunlit = (potential[1:] > 0) & (potential[:-1] > 0)
+    d_rg = np.where(sunlit, d_rg, np.nan)
+    scores = {}
+    for key, k in shifts.items():
+        a, b = (d_nee[k:], d_rg[:d_rg.size - k]) if k >= 0 else (d_nee[:k], d_rg[-k:])
+        r, count = _correlation(a, b)
+        scores[key] = (-r, count)
+    return scores
+
+
 def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | None:
     """A message where NEE follows Rg by whole records, or None.
 
@@ -335,19 +350,8 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
     potential = np.asarray(potential, dtype=float)
     if nee.size < 3 or nee.size != rg.size or interval_minutes <= 0:
         return None
-    d_nee, d_rg = np.diff(nee), np.diff(rg)
-    sunlit = (potential[1:] > 0) & (potential[:-1] > 0)
-    d_rg = np.where(sunlit, d_rg, np.nan)
     most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
-    scores = {}
-    for k in range(-most, most + 1):
-        # NEE change of record t + k against the Rg change of record t
-        if k >= 0:
-            a, b = d_nee[k:], d_rg[:d_rg.size - k]
-        else:
-            a, b = d_nee[:k], d_rg[-k:]
-        r, count = _correlation(a, b)
-        scores[k] = (-r, count)
+    scores = _sunlit_change_scores(nee, rg, potential, {k: k for k in range(-most, most + 1)})
     found = _decide(scores)
     if found is None:
         return None
@@ -420,18 +424,9 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     if nee.size < 3 or not nee.size == rg.size == potential.size or interval_minutes <= 0:
         return None
     per_day = int(round(1440.0 / interval_minutes))
-    d_nee, d_rg = np.diff(nee), np.diff(rg)
-    sunlit = (potential[1:] > 0) & (potential[:-1] > 0)
-    d_rg = np.where(sunlit, d_rg, np.nan)
-    scores = {}
-    for days in range(-_MAX_SHIFT_DAYS, _MAX_SHIFT_DAYS + 1):
-        k = days * per_day
-        if abs(k) >= d_nee.size:
-            continue
-        # NEE change of record t + k against the Rg change of record t
-        a, b = (d_nee[k:], d_rg[:d_rg.size - k]) if k >= 0 else (d_nee[:k], d_rg[-k:])
-        r, count = _correlation(a, b)
-        scores[days] = (-r, count)
+    shifts = {days: days * per_day for days in range(-_MAX_SHIFT_DAYS, _MAX_SHIFT_DAYS + 1)
+              if abs(days * per_day) < nee.size - 1}
+    scores = _sunlit_change_scores(nee, rg, potential, shifts)
     scores = {days: score for days, score in scores.items() if math.isfinite(score[0])}
     if 0 not in scores or len(scores) < 2:
         return None
