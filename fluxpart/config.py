@@ -397,22 +397,6 @@ class Config:
         and VPD differ by less than these [W m-2], [°C], [hPa]; 35 W m-2 (about the
         75 µmol m-2 s-1 of PPFD of Richardson et al. 2006 (m)), 3 °C (Richardson et al.
         2006 (m)) and 5 hPa (our choice, standing in for their wind-speed criterion).
-    structural_error : str
-        Which uncertainty totals carry the structural part of GPP and Reco: the part
-        of the methods' difference d = daytime − nighttime that their own quantified
-        parts (p_day, p_night) do not explain, max(d² − p_day² − p_night², 0), the
-        sum of the two methods' structural variances
-        (:func:`fluxpart.uncertainty.period_uncertainty`). ``"daytime"`` (default,
-        new in 0.22.0): all of it in the daytime method's totals. The daytime method
-        rests on more model structure (a light-response form, the VPD limitation, E0
-        from the night records; Lasslop et al. 2010), and measured on the 168
-        generated site-years of the three benchmarks the nighttime method's 95 %
-        intervals hold the truth without this part (97 / 93, 96 / 98 and 91 / 95 %
-        for GPP / Reco), the daytime method's do not (77 / 74 % on the calibration
-        set). ``"shared"`` (0.2.0–0.21.0): half of it in each method's totals, which
-        made the nighttime intervals too wide (100 / 100 % of the calibration
-        site-years, median |error|/σ 0.28 / 0.41 where 0.67 is calibrated) and the
-        daytime ones too narrow (96 / 90 %).
     agreement_margin : float
         Largest relative difference between daytime and nighttime annual GPP (and
         Reco), ``|day - night| / mean``, before the result warns that the methods
@@ -512,7 +496,6 @@ class Config:
     random_error_rg_tolerance: float = 35.0
     random_error_tair_tolerance: float = 3.0
     random_error_vpd_tolerance: float = 5.0
-    structural_error: str = "daytime"
     agreement_margin: float = 0.15
     clock_check: str = "refuse"
     year_start: str = "01-01"
@@ -598,7 +581,6 @@ _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "ustar_method": ("moving_point", "change_point", "fixed"),
             "ustar_annual": ("median", "maximum"),
             "ustar_distinct_seasons": ("own_threshold", "uncertainty_only"),
-            "structural_error": ("daytime", "shared"),
             "clock_check": ("refuse", "warn", "off")}
 
 

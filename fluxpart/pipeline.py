@@ -1052,13 +1052,11 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
     for table, keys in ((daily, index.normalize()),
                         (monthly, index.to_period("M").to_timestamp())):
         parts = uncertainty.period_uncertainty(inputs, keys, interval,
-                                               ustar_percentiles=percentiles,
-                                               structural_error=config.structural_error)
+                                               ustar_percentiles=percentiles)
         sigmas = [c for c in parts.columns if c.endswith("_sigma")]
         tables.append(table.join(parts[sigmas].reindex(table.index)))
     parts = uncertainty.period_uncertainty(inputs, year_keys, interval,
-                                           ustar_percentiles=percentiles,
-                                           structural_error=config.structural_error)
+                                           ustar_percentiles=percentiles)
     random = uncertainty.monte_carlo_sums(noise, index, interval,
                                           draws=config.random_error_draws, seed=config.seed,
                                           year_keys=year_keys)

@@ -208,11 +208,9 @@ UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
                                           "records Reco is fitted to)"),
     "gpp_uncertainty_partitioning": (CARBON, "1 sigma: structural error of GPP (carbon): "
                                      "the part of d = daytime - nighttime the methods' "
-                                     "parameter parts do not explain, e = max(d^2 - "
-                                     "p_day^2 - p_night^2, 0): sqrt(e) in the daytime "
-                                     "totals (structural_error = daytime, the default), "
-                                     "sqrt(e / 2) in the totals of both methods "
-                                     "(shared)"),
+                                     "parameter parts do not explain, sqrt(max(d^2 - "
+                                     "p_day^2 - p_night^2, 0) / 2); in the totals of both "
+                                     "methods"),
     "reco_uncertainty_temperature_driver": (CARBON, "1 sigma: structural error of Reco and GPP "
                                             "(carbon) from the choice of respiration "
                                             "temperature: |nighttime Reco with the other "
@@ -238,11 +236,9 @@ UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
                                                   "fails)"),
     "reco_uncertainty_partitioning": (CARBON, "1 sigma: structural error of Reco (carbon): "
                                       "the part of d = daytime - nighttime the methods' "
-                                      "parameter parts do not explain, e = max(d^2 - "
-                                      "p_day^2 - p_night^2, 0): sqrt(e) in the daytime "
-                                      "totals (structural_error = daytime, the default), "
-                                      "sqrt(e / 2) in the totals of both methods "
-                                      "(shared)"),
+                                      "parameter parts do not explain, sqrt(max(d^2 - "
+                                      "p_day^2 - p_night^2, 0) / 2); in the totals of both "
+                                      "methods"),
     "uncertainty_parts_missing": ("", "parts of the budget that could not be estimated this "
                                   "year (left out of the totals and intervals)"),
     "net_uptake_t_co2_per_ha": (METADATA_TONNES_PER_HECTARE, "net CO2 uptake in the year in "

@@ -5,17 +5,12 @@ The annual table writes every part of the stated uncertainty as its own column
 nor the same column of a part: nighttime GPP (Reco − NEE) takes NEE's random and
 gap-filling errors only outside the night (``gpp_nighttime_uncertainty_random``,
 ``..._gapfill``), and the daytime method, which keeps Lloyd–Taylor, its own
-respiration-form part; the structural part (``gpp_uncertainty_partitioning``,
-``reco_uncertainty_partitioning``) is in the daytime totals, and in the nighttime totals
-only where the run shared it (``structural_error = "shared"``, or a result written
-before 0.22.0). :func:`uncertainty_parts` picks for each flux the columns its
+respiration-form part. :func:`uncertainty_parts` picks for each flux the columns its
 ``X_uncertainty_total`` combines, so that the parts shown add up (in quadrature) to the
 total shown. Pure pandas: the report imports it without any method module.
 """
 
 from __future__ import annotations
-
-import math
 
 import pandas as pd
 
@@ -60,25 +55,6 @@ def _part_column(flux: str, part: str) -> str | None:
     raise ValueError(f"unknown uncertainty part {part!r}")
 
 
-def _total_takes_partitioning(parts: dict, total: float) -> bool:
-    """Whether `total` [g C m-2] combines the structural ``"partitioning"`` part.
-
-    The daytime totals always do; the nighttime totals only where the run shared the
-    structural part between the methods (``structural_error = "shared"``, and every
-    release before 0.22.0). Read from the numbers written: the total is the root sum
-    of squares of its parts, so its square is nearer the parts' squares with the
-    structural part than without it exactly where it was combined (a zero part, or a
-    tie, is shown as not taken).
-    """
-    structural = parts.get("partitioning", float("nan"))
-    if not math.isfinite(structural) or not math.isfinite(total):
-        return False
-    others = sum(value * value for part, value in parts.items()
-                 if part in PART_LABELS and part != "partitioning" and math.isfinite(value))
-    square = total * total
-    return abs(square - others - structural * structural) < abs(square - others)
-
-
 def uncertainty_parts(annual: pd.DataFrame) -> pd.DataFrame | None:
     """Each annual flux's uncertainty parts, total and stated 95 % interval.
 
@@ -113,9 +89,6 @@ def uncertainty_parts(annual: pd.DataFrame) -> pd.DataFrame | None:
             for part in PART_LABELS:
                 column = _part_column(flux, part)
                 entry[part] = float(row.get(column, nan)) if column else nan
-            if flux.endswith("_nighttime") and not _total_takes_partitioning(
-                    entry, float(row[total])):
-                entry["partitioning"] = nan
             entry.update(total=float(row[total]),
                          ci95_low=float(row.get(f"{flux}_ci95_low", nan)),
                          ci95_high=float(row.get(f"{flux}_ci95_high", nan)))

@@ -519,15 +519,11 @@ def test_window_at_zero_takes_the_typical_relative_error_not_se_over_value():
     assert by_window[2] == pytest.approx(0.15) and by_window[3] == pytest.approx(0.15)
 
 
-@pytest.mark.parametrize("structural_error", ["daytime", "shared"])
-def test_structural_part_is_the_method_difference_the_parameter_parts_do_not_explain(
-        structural_error):
+def test_structural_part_is_the_method_difference_the_parameter_parts_do_not_explain():
     """For independent errors, Var(d) of d = daytime − nighttime is the sum of the
     methods' variances (elementary statistics): with specific parts p_day, p_night and
-    structural errors s_day, s_night, E[d²] = p_day² + p_night² + s_day² + s_night², so
-    one year's d gives s_day² + s_night² = max(d² − p_day² − p_night², 0), and 0 when
-    the parts explain d. ``"daytime"`` puts all of it in the daytime totals (s_night =
-    0); ``"shared"`` half in each (s = sqrt(max(...) / 2), as before 0.22.0)."""
+    a common structural s, E[d²] = p_day² + p_night² + 2 s². The structural part is
+    s = sqrt(max(d² − p_day² − p_night², 0) / 2), and 0 when the parts explain d."""
     from fluxpart.uncertainty import UncertaintyInputs, period_uncertainty
 
     index = pd.date_range("2021-06-01", periods=10 * 48, freq="30min")
@@ -542,60 +538,16 @@ def test_structural_part_is_the_method_difference_the_parameter_parts_do_not_exp
         fluxes=fluxes, runs={}, gapfill_model=None, e0_delta=np.zeros(n),
         night_window=np.zeros(n, dtype=int), night_relative_se=np.full(n, 0.02),
         day_window=np.zeros(n, dtype=int), day_relative_se=np.full(n, 0.05))
-    out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30,
-                             structural_error=structural_error).iloc[0]
+    out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
     grams = 1800 * 12.011e-6        # µmol m-2 s-1 over 30 min -> g C m-2
     difference = (reco_day.sum() - reco_night.sum()) * grams
     p_night, p_day = 0.02 * reco_night.sum() * grams, 0.05 * reco_day.sum() * grams
     assert out["reco_nighttime_uncertainty_parameters"] == pytest.approx(p_night)
     assert out["reco_daytime_uncertainty_parameters"] == pytest.approx(p_day)
-    excess = max(difference**2 - p_night**2 - p_day**2, 0.0)
-    assert excess > 0
-    if structural_error == "daytime":
-        assert out["reco_uncertainty_partitioning"] == pytest.approx(np.sqrt(excess))
-        assert out["reco_nighttime_uncertainty_total"] == pytest.approx(p_night)
-    else:
-        assert out["reco_uncertainty_partitioning"] == pytest.approx(np.sqrt(excess / 2))
-        assert out["reco_nighttime_uncertainty_total"] == pytest.approx(
-            np.hypot(p_night, np.sqrt(excess / 2)))
-    # either way the two totals together explain d: E[d²] = total_day² + total_night²
-    assert (out["reco_daytime_uncertainty_total"] ** 2
-            + out["reco_nighttime_uncertainty_total"] ** 2) == pytest.approx(difference**2)
-
-
-@pytest.mark.parametrize("structural_error", ["daytime", "shared"])
-def test_parts_shown_take_the_structural_part_where_the_total_does(structural_error):
-    """The display of the parts (:func:`fluxpart.uncertainty_parts.uncertainty_parts`)
-    shows the structural part in a nighttime flux's row only where its total combines
-    it, so that the parts shown combine in quadrature into the total shown (GUM, JCGM
-    100:2008 §5.1 (m)) under either setting and for results written before 0.22.0."""
-    from fluxpart.uncertainty import UncertaintyInputs, period_uncertainty
-    from fluxpart.uncertainty_parts import uncertainty_parts
-
-    index = pd.date_range("2021-06-01", periods=10 * 48, freq="30min")
-    n = len(index)
-    night = (index.hour < 5) | (index.hour >= 21)
-    fluxes = pd.DataFrame({"nee": np.full(n, -1.0), "reco_nighttime": np.full(n, 2.0),
-                           "gpp_nighttime": np.full(n, 3.0),
-                           "reco_daytime": np.full(n, 2.6),
-                           "gpp_daytime": np.where(night, 0.0, 3.9)}, index=index)
-    inputs = UncertaintyInputs(
-        measured=np.ones(n, dtype=bool), noise_sigma=np.full(n, 0.5), is_night=night,
-        fluxes=fluxes, runs={}, gapfill_model=None, e0_delta=np.zeros(n),
-        night_window=np.zeros(n, dtype=int), night_relative_se=np.full(n, 0.02),
-        day_window=np.zeros(n, dtype=int), day_relative_se=np.full(n, 0.05))
-    annual = period_uncertainty(inputs, np.zeros(n, dtype=int), 30,
-                                structural_error=structural_error)
-    table = uncertainty_parts(annual)
-    parts = table.drop(columns=["total", "ci95_low", "ci95_high"])
-    combined = np.sqrt(np.square(parts).sum(axis=1, min_count=1))
-    assert np.allclose(combined, table["total"], rtol=1e-9, atol=0.0)
-    shown = table["partitioning"].xs(0, level="year")
-    assert shown["reco_daytime"] > 0 and shown["gpp_daytime"] > 0
-    if structural_error == "daytime":
-        assert np.isnan(shown["reco_nighttime"]) and np.isnan(shown["gpp_nighttime"])
-    else:
-        assert shown["reco_nighttime"] == shown["reco_daytime"] > 0
+    expected = np.sqrt(max(difference**2 - p_night**2 - p_day**2, 0.0) / 2.0)
+    assert expected > 0
+    assert out["reco_uncertainty_partitioning"] == pytest.approx(expected)
+    assert out["reco_nighttime_uncertainty_total"] == pytest.approx(np.hypot(p_night, expected))
 
 
 def _one_period_with_fills(model):
