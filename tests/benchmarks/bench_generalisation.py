@@ -82,8 +82,9 @@ def scored(site_year: scenarios.SiteYear, row: dict) -> dict:
                                         <= annual[f"{column}_ci95_high"])
         row[f"{column}_width"] = float(annual[f"{column}_ci95_high"]
                                        - annual[f"{column}_ci95_low"])
-    for part in ("random", "gapfill", "gapfill_bias", "gapfill_bias_se", "ustar"):
-        row[f"nee_uncertainty_{part}"] = float(annual[f"nee_uncertainty_{part}"])
+    for column in annual.index:   # every 1-sigma part, for studying how they combine
+        if "_uncertainty_" in column:
+            row[column] = float(annual[column])
     return row
 
 
