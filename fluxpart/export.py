@@ -159,7 +159,7 @@ def _bounds(starts: pd.DatetimeIndex, length: pd.Timedelta, offset: pd.Timedelta
 
 
 def to_xarray(result):
-    """Return the half-hourly and daily series of a result as a CF-1.10 Dataset.
+    """Return the record (30 or 60 min) and daily series of a result as a CF-1.10 Dataset.
 
     Parameters
     ----------

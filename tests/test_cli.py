@@ -241,3 +241,13 @@ def test_every_command_help_states_its_exit_statuses(command, capsys):
     if command in ("check", "batch", "verify", "diff"):
         assert "1: " in text
     assert "half-hourly" not in text  # records may be hourly; export writes the record interval
+
+
+def test_netcdf_export_docs_do_not_promise_half_hourly_records():
+    # a site of hourly records (README: "records of 30 or 60 minutes") is exported at its own
+    # interval (global attribute interval_minutes); the docstrings said "half-hourly" (review22)
+    from fluxpart.export import to_xarray
+    from fluxpart.result import Result
+
+    for doc in (Result.to_xarray.__doc__, to_xarray.__doc__):
+        assert "half-hourly" not in doc and "30 or 60 min" in doc
