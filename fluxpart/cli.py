@@ -428,8 +428,8 @@ def _parser() -> argparse.ArgumentParser:
         "check", help="validate the input only: coverage, gaps, problems",
         description="Read and validate the input without fitting: coverage per variable, gaps, "
         "ranges and units, the clock check, every stage's preflight, screening counts and the "
-        "u* threshold. Exit 0: nothing found; 1: problems or warnings listed; 2: an input or "
-        "usage error.")
+        "u* threshold. Exit 0: nothing found; 1: problems listed (the reader's warnings among "
+        "them); 2: an input or usage error.")
     check.add_argument("config", type=_path, help="site config (TOML)")
     check.set_defaults(handler=_command_check)
 
