@@ -71,3 +71,16 @@ def test_the_data_flow_map_names_every_stage_module_the_pipeline_calls():
     assert {"clock", "preflight", "budget", "gapfill"} <= called
     missing = {name for name in called if not re.search(rf"\b{name}\.\w+", block)}
     assert not missing, missing
+
+
+def test_readme_output_files_name_every_table_a_result_folder_holds():
+    """Docs against the code (review22): README's "Output files" did not name
+    screening.parquet, one of the tables every result folder holds."""
+    from fluxpart.resultdir import _RESULT_TABLES
+
+    text = (ROOT.parent / "README.md").read_text(encoding="utf-8")
+    section = text.split("\n## Output files\n", 1)[1].split("\n## ", 1)[0]
+    assert "screening" in _RESULT_TABLES
+    missing = [name for name in _RESULT_TABLES if f"`{name}.parquet`" not in section]
+    assert not missing, missing
+    assert "`parameters_*.parquet`" in section and "`manifest.json`" in section
