@@ -100,6 +100,12 @@ def _uncertainty_parts_missing(year, row, config, failed=()) -> list:
             causes.append("ustar_bootstrap_draws = 0 turns the u* threshold's bootstrap off")
         elif not config.ustar_scenarios:
             causes.append("ustar_scenarios = [] runs no u* scenario")
+        elif set(config.ustar_scenarios) == {50}:
+            # the median's standard-normal quantile is 0, the central run's: no span to
+            # scale a spread by (fluxpart.uncertainty.ustar_sigma)
+            causes.append("ustar_scenarios = [50] reruns only at the median threshold, "
+                          "which spans no quantile beside the central run; add percentiles "
+                          "on either side, e.g. [16, 50, 84]")
     cause = f" ({'; '.join(causes)})" if causes else ""
     return [f"{year}: the 95 % intervals leave out the {parts} part(s) of the uncertainty, "
             f"which could not be estimated{cause}: they understate the uncertainty of the "

@@ -404,19 +404,32 @@ def _parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"%(prog)s {__version__}")
     commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
 
-    demo = commands.add_parser("demo", help="run the full pipeline on the invented demo site")
+    demo = commands.add_parser(
+        "demo", help="run the full pipeline on the invented demo site",
+        description="Generate a year of the invented (fictional) Quillmoor site, run the full "
+        "pipeline on it, print its annual budget and its error against the demo's known truth, "
+        "and write the result folder with its report page. Exit 0: written; 2: error.")
     demo.add_argument("--out", type=_path, default="fluxpart-demo", help="output folder (default: %(default)s)")
     demo.add_argument("--seed", type=int, default=0, help="seed of the demo data (default: 0)")
     demo.add_argument("--quiet", action="store_true", help="no progress output")
     demo.set_defaults(handler=_command_demo)
 
-    run = commands.add_parser("run", help="process one site config (one or more years)")
+    run = commands.add_parser(
+        "run", help="process one site config (one or more years)",
+        description="Read the records the site config names, run every stage and write the "
+        "result folder (Parquet tables, manifest.json, run-log.json). Warnings are printed and "
+        "kept in the manifest. Exit 0: written; 2: an input or usage error (nothing written).")
     run.add_argument("config", type=_path, help="site config (TOML)")
     run.add_argument("--out", type=_path, help="output folder (default: <config name>-output beside it)")
     run.add_argument("--quiet", action="store_true", help="no progress output")
     run.set_defaults(handler=_command_run)
 
-    check = commands.add_parser("check", help="validate the input only: coverage, gaps, problems")
+    check = commands.add_parser(
+        "check", help="validate the input only: coverage, gaps, problems",
+        description="Read and validate the input without fitting: coverage per variable, gaps, "
+        "ranges and units, the clock check, every stage's preflight, screening counts and the "
+        "u* threshold. Exit 0: nothing found; 1: problems listed (the reader's warnings among "
+        "them); 2: an input or usage error.")
     check.add_argument("config", type=_path, help="site config (TOML)")
     check.set_defaults(handler=_command_check)
 
@@ -445,7 +458,10 @@ def _parser() -> argparse.ArgumentParser:
     diff.add_argument("second", type=_path, help="another result folder")
     diff.set_defaults(handler=_lazy("diff", "command_diff"))
 
-    report = commands.add_parser("report", help="figures and a self-contained HTML page")
+    report = commands.add_parser(
+        "report", help="figures and a self-contained HTML page",
+        description="Draw the figures and one self-contained HTML page from the tables of a "
+        "result folder (nothing is rerun). Exit 0: written; 2: error.")
     report.add_argument("directory", type=_path, help="result folder written by run or demo")
     report.add_argument("--out", type=_path, help="where to write the page (default: DIR/report/)")
     report.add_argument("--quiet", action="store_true", help="no progress output")
@@ -456,7 +472,8 @@ def _parser() -> argparse.ArgumentParser:
         description="Process every site config listed in SITES.toml, one Dask task per site. "
         "SITES.toml: [batch] sites = [\"a.toml\", \"towers/*.toml\"] (paths or globs relative to "
         "it) and optionally out = \"network-output\". Inputs travel to the workers as paths, so "
-        "every worker must see the same file system.")
+        "every worker must see the same file system. Exit 0: every site succeeded; 1: a site "
+        "failed (listed in failures.parquet); 2: error.")
     batch.add_argument("sites", type=_path, help="SITES.toml listing site configs (paths or globs)")
     batch.add_argument("--scheduler", help="address of an existing Dask scheduler, e.g. "
                        "tcp://scheduler-host:8786; its workers must share this file system (default: a "
@@ -468,10 +485,13 @@ def _parser() -> argparse.ArgumentParser:
     batch.set_defaults(handler=_lazy("batch", "command_batch"))
 
     export = commands.add_parser(
-        "export", help="write a result folder as CF-1.10 NetCDF (needs the netcdf extra)")
+        "export", help="write a result folder as CF-1.10 NetCDF (needs the netcdf extra)",
+        description="Write the record series (at the record interval, 30 or 60 min) and the "
+        "daily series of a result folder as one CF-1.10 NetCDF file, carbon fluxes in "
+        "kg m-2 s-1, times in UTC with cell bounds. Exit 0: written; 2: error (no file left).")
     export.add_argument("directory", type=_path, help="result folder written by run or demo")
     export.add_argument("--netcdf", type=_path, required=True, metavar="FILE",
-                        help="NetCDF file to write (half-hourly and daily series)")
+                        help="NetCDF file to write (record and daily series)")
     export.set_defaults(handler=_command_export)
     return parser
 

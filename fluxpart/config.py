@@ -288,10 +288,13 @@ class Config:
         and where no year has one the nighttime method fails with an
         :class:`~fluxpart.errors.InsufficientDataError` (the run goes on with the daytime
         method alone where that one fits: :mod:`fluxpart.method_failure`).
-        The daytime method uses it likewise when none of its night windows gives an E0;
-        with ``None`` it then takes the year's nighttime E0 instead of failing, flagged
-        ``"fallback"`` in its parameter table and warned about (the two methods then
-        share E0, so their difference no longer tests it).
+        The daytime method takes its own E0 from the night windows around its windows,
+        pooled over the year, else pooled over all years (``e0_source`` ``"year"``,
+        ``"all_years"``); where neither pool is acceptable it uses this value, and with
+        ``None`` the median of the nighttime method's E0 over all records (one value for
+        the record, not each year's) instead of failing, flagged ``"fallback"`` in its
+        parameter table and warned about with each calendar year's nighttime E0 (the two
+        methods then share E0, so their difference no longer tests it).
     rref_window_days : float
         Window for the reference respiration with E0 fixed [days]; 4 days,
         Reichstein et al. (2005).

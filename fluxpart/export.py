@@ -159,7 +159,7 @@ def _bounds(starts: pd.DatetimeIndex, length: pd.Timedelta, offset: pd.Timedelta
 
 
 def to_xarray(result):
-    """Return the half-hourly and daily series of a result as a CF-1.10 Dataset.
+    """Return the record (30 or 60 min) and daily series of a result as a CF-1.10 Dataset.
 
     Parameters
     ----------
@@ -218,7 +218,13 @@ def to_xarray(result):
         variables["nee_random_error"] = (
             "time", series["nee_random_error"].to_numpy(dtype=float) * KG_CARBON_PER_UMOL,
             {"long_name": "random error of nee, one standard deviation (as carbon)",
-             "units": "kg m-2 s-1"})
+             "units": "kg m-2 s-1",
+             "comment": "a measured record: the random measurement error modelled at its "
+             "flux; a filled record: the larger of that and the spread of the measured "
+             "records its fill averaged (where it averaged 5 or more). Errors of "
+             "neighbouring records and of fills that share records are correlated, so "
+             "these do not add in quadrature to a day's error: use the daily "
+             "*_daily_sum_sigma"})
         ancillary.append("nee_random_error")
     for name, (column, long_name) in _FLUXES.items():
         values = series[column].to_numpy(dtype=float) * KG_CARBON_PER_UMOL

@@ -374,7 +374,8 @@ def _summary_card(written: Written) -> tuple[str, bool]:
         if "methods_agree" in row.index and pd.notna(row["methods_agree"]):
             agree = bool(row["methods_agree"])
             margin = written.setting("agreement_margin")
-            relative = [f"{name} {100 * float(row[column]):+.1f} %"
+            # + 0.0 turns a difference rounded to -0.0 into 0.0 (no sign without a digit)
+            relative = [f"{name} {round(100 * float(row[column]), 1) + 0.0:+.1f} %"
                         for name, column in (("GPP", "gpp_relative_difference"),
                                              ("Reco", "reco_relative_difference"))
                         if _finite(row.get(column))]

@@ -194,3 +194,60 @@ def test_check_does_not_list_a_u_star_year_its_table_shows_detected(tmp_path, ca
     out = capsys.readouterr().out
     assert "u* threshold: 2021: no season has the 360 night records" in out
     assert "pooled_year" in out.split("u* threshold [m s-1]")[1]
+
+
+def _readme_command_block() -> str:
+    """The fenced block under README's "## Command line" heading."""
+    text = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
+    section = text.split("\n## Command line\n", 1)[1]
+    return section.split("```", 2)[1]
+
+
+def test_readme_command_block_lists_every_option_of_every_command():
+    # docs against the code: the options argparse (the standard library) actually defines for
+    # each command must be in that command's README entry (review22: demo --seed and --quiet,
+    # batch --out and --quiet, run and report --quiet were missing)
+    import argparse
+
+    from fluxpart.cli import _parser
+
+    block = _readme_command_block()
+    entries = {}
+    for line in block.splitlines():
+        if line.startswith("fluxpart "):
+            current = line.split()[1]
+            entries[current] = line
+        elif line.startswith(" ") and entries:
+            entries[current] += line
+    commands = next(a for a in _parser()._actions if isinstance(a, argparse._SubParsersAction))
+    assert set(commands.choices) <= set(entries), set(commands.choices) - set(entries)
+    for name, sub in commands.choices.items():
+        options = {o for action in sub._actions for o in action.option_strings
+                   if o.startswith("--") and o != "--help"}
+        missing = {o for o in options if o not in entries[name]}
+        assert not missing, (name, missing)
+
+
+@pytest.mark.parametrize("command", ["demo", "run", "check", "verify", "diff", "report",
+                                     "batch", "export"])
+def test_every_command_help_states_its_exit_statuses(command, capsys):
+    # a user of `fluxpart COMMAND --help` learns what the exit status means (review22:
+    # only verify and diff said so; check's 1 for problems was in the README alone)
+    with pytest.raises(SystemExit) as stop:
+        main([command, "--help"])
+    assert stop.value.code == 0
+    text = " ".join(capsys.readouterr().out.split())
+    assert "Exit 0" in text and "2: " in text
+    if command in ("check", "batch", "verify", "diff"):
+        assert "1: " in text
+    assert "half-hourly" not in text  # records may be hourly; export writes the record interval
+
+
+def test_netcdf_export_docs_do_not_promise_half_hourly_records():
+    # a site of hourly records (README: "records of 30 or 60 minutes") is exported at its own
+    # interval (global attribute interval_minutes); the docstrings said "half-hourly" (review22)
+    from fluxpart.export import to_xarray
+    from fluxpart.result import Result
+
+    for doc in (Result.to_xarray.__doc__, to_xarray.__doc__):
+        assert "half-hourly" not in doc and "30 or 60 min" in doc

@@ -384,3 +384,20 @@ def test_a_site_config_that_is_a_pipe_or_a_device_is_refused_not_read(tmp_path):
     for path in (pipe, Path(os.devnull)):
         with pytest.raises(InputFileError, match="is not a regular file"):
             read_site_config(path)
+
+
+def test_e0_fallback_docstring_says_what_the_daytime_method_takes():
+    """Docs against the code (review22): the Config docstring, which the report's settings
+    table shows, said the daytime method takes "the year's nighttime E0" where its night
+    windows give none. The code (fluxpart.partition.daytime pools the windows of the year,
+    then of all years; fluxpart.pipeline passes the median of the nighttime E0 over all
+    records as the fallback) takes one record-wide median, as README and the warning say."""
+    import inspect
+
+    from fluxpart.config import Config
+
+    text = inspect.cleandoc(Config.__doc__)
+    entry = text.split("\ne0_fallback :", 1)[1].split("\nrref_window_days :", 1)[0]
+    entry = " ".join(entry.split())
+    assert "the year's nighttime E0" not in entry
+    assert '"all_years"' in entry and "median of the nighttime method's E0" in entry

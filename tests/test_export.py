@@ -379,3 +379,24 @@ def test_the_result_docstring_names_every_parameter_table_and_fill_class(written
         assert f"``{key}``" in doc, key
     for label in result.timeseries["tair_fill_quality"].cat.categories:
         assert f'``"{label}"``' in doc, label
+
+
+def test_record_random_error_says_what_it_is_for_filled_records(exported):
+    """Behaviour check of the documented meaning (review22): the NetCDF's nee_random_error
+    said "random error of nee" alone, while a filled record carries the larger of the
+    modelled measurement error and the spread of the records its fill averaged
+    (fluxpart.uncertainty.record_random_error). The comment now says so; checked on the
+    written demo: where a fill averaged 5 or more records, the value is at least their
+    standard deviation (nee_fill_std), and measured records have no fill spread."""
+    result, dataset = exported
+    comment = dataset["nee_random_error"].attrs["comment"]
+    assert "filled record" in comment and "spread" in comment
+    assert "_daily_sum_sigma" in comment and "nee_daily_sum_sigma" in dataset
+    series = result.timeseries
+    sigma = dataset["nee_random_error"].to_numpy() / 12.011e-9   # back to µmol m-2 s-1
+    spread = series["nee_fill_std"].to_numpy(dtype=float)
+    averaged = (series["nee_fill_count"].to_numpy(dtype=float) >= 5) & np.isfinite(spread)
+    assert averaged.sum() > 1000
+    assert np.all(sigma[averaged] >= spread[averaged] * (1 - 1e-9))
+    measured = series["nee_fill_quality"].astype(str).to_numpy() == "measured"
+    assert np.isnan(spread[measured]).all() and np.isfinite(sigma[measured]).all()

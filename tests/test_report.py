@@ -1150,3 +1150,22 @@ def test_a_budget_year_of_one_calendar_years_records_shows_that_years_range():
                                                   summary).group(1))
         assert line == (" 0.181 m s-1 (bootstrap 5–95 %: 0.160–0.199 m s-1); night records "
                         "below it were removed before gap filling."), years
+
+
+def test_a_method_difference_rounded_to_zero_shows_no_minus_sign():
+    """A relative difference of -0.04 % rounds to 0.0 at one decimal, and IEEE 754 keeps
+    the sign of a negative number rounded to zero (Python's format of -0.0 is '-0.0'): the
+    card printed "GPP -0.0 %" (review21, left; fixed in review22). Differences that round
+    to a digit keep their sign."""
+    assert f"{round(-0.04, 1):+.1f}" == "-0.0"        # the standard library's behaviour
+    index = pd.date_range("2021-01-01", "2021-12-31 23:30", freq="30min")
+    annual = pd.DataFrame({"nee": [-100.0], "methods_agree": [True],
+                           "gpp_relative_difference": [-0.0004],
+                           "reco_relative_difference": [-0.0123]},
+                          index=pd.Index([2021], name="year"))
+    written = report.Written(manifest={}, tables={
+        "timeseries": pd.DataFrame({"nee_filled": 1.0}, index=index), "annual": annual})
+    summary, _ = report._summary_card(written)
+    line = re.sub(r"<[^>]+>", "", re.search(r"Method agreement:</strong>(.*?)</li>",
+                                              summary).group(1))
+    assert "GPP +0.0 %" in line and "Reco -1.2 %" in line and "-0.0" not in line

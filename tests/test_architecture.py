@@ -1,0 +1,86 @@
+"""The seams of the contributor guide's architecture map, checked on the source (ast, the
+standard library's parser) and on the modules an import loads."""
+import ast
+import re
+import subprocess
+import sys
+from pathlib import Path
+
+import fluxpart
+
+ROOT = Path(fluxpart.__file__).parent
+#: modules that compute a method or stage; a writer of results needs none of them
+METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "column_faults",
+                  "gapfill", "method_failure", "partition", "preflight", "responses",
+                  "scenarios", "screening", "solar", "storage_check", "uncertainty",
+                  "unit_checks", "ustar", "ustar_seasonal", "demo"}
+ORCHESTRATORS = {"pipeline", "batch", "cli", "verify", "diff", "report"}
+
+
+def _relative_imports(name: str) -> set:
+    """Every module a fluxpart source file imports relatively, at any depth of its code."""
+    tree = ast.parse((ROOT / name).read_text(encoding="utf-8"))
+    found = set()
+    for node in ast.walk(tree):
+        if isinstance(node, ast.ImportFrom) and node.level >= 1:
+            if node.module:
+                found.add(node.module.split(".")[0])
+            else:                                   # from . import a, b
+                found.update(alias.name for alias in node.names)
+    return found
+
+
+def _loaded_by(statement: str) -> set:
+    code = (f"import sys; {statement}; "
+            "print(sorted(m for m in sys.modules if m.startswith('fluxpart.')))")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          timeout=120, check=True)
+    return {m.removeprefix("fluxpart.").split(".")[0] for m in eval(done.stdout)}
+
+
+def test_manifest_and_pipeline_do_not_import_each_other():
+    assert "pipeline" not in _relative_imports("manifest.py")
+    assert "manifest" not in _relative_imports("pipeline.py")
+    assert "pipeline" not in _loaded_by("import fluxpart.manifest")
+
+
+def test_writers_know_no_orchestrator_and_no_method():
+    """store, resultdir, manifest, export and result write and read result folders; they
+    import no orchestrator (pipeline, batch, the commands) and no method module."""
+    for name in ("store.py", "resultdir.py", "manifest.py", "export.py", "result.py"):
+        imported = _relative_imports(name)
+        assert not imported & (METHOD_MODULES | ORCHESTRATORS), (name, imported)
+    loaded = _loaded_by("import fluxpart.store, fluxpart.resultdir, fluxpart.manifest, "
+                        "fluxpart.export, fluxpart.result")
+    assert not loaded & (METHOD_MODULES | ORCHESTRATORS), loaded
+
+
+def test_the_data_flow_map_names_every_stage_module_the_pipeline_calls():
+    """Docs against the code (review22): the data-flow block of DEVELOPERS.md lacked the
+    clock check and preflight, the seasonal u* runs, the respiration-temperature choice,
+    the morning-release loop, the unit checks of a caller's frame and the schema's
+    labelling, all of which process() calls."""
+    text = (ROOT.parent / "DEVELOPERS.md").read_text(encoding="utf-8")
+    block = text.split("## Architecture map", 1)[1].split("```", 2)[1]
+    source = (ROOT / "pipeline.py").read_text(encoding="utf-8")
+    imported = _relative_imports("pipeline.py") | {"daytime", "nighttime", "respiration_form",
+                                                   "temperature_choice"}
+    stages = METHOD_MODULES | {"schema", "timestamps", "daytime", "nighttime",
+                               "respiration_form", "temperature_choice"}
+    called = {name for name in imported & stages if re.search(rf"\b{name}\.\w+\(", source)}
+    assert {"clock", "preflight", "budget", "gapfill"} <= called
+    missing = {name for name in called if not re.search(rf"\b{name}\.\w+", block)}
+    assert not missing, missing
+
+
+def test_readme_output_files_name_every_table_a_result_folder_holds():
+    """Docs against the code (review22): README's "Output files" did not name
+    screening.parquet, one of the tables every result folder holds."""
+    from fluxpart.resultdir import _RESULT_TABLES
+
+    text = (ROOT.parent / "README.md").read_text(encoding="utf-8")
+    section = text.split("\n## Output files\n", 1)[1].split("\n## ", 1)[0]
+    assert "screening" in _RESULT_TABLES
+    missing = [name for name in _RESULT_TABLES if f"`{name}.parquet`" not in section]
+    assert not missing, missing
+    assert "`parameters_*.parquet`" in section and "`manifest.json`" in section
