@@ -22,6 +22,9 @@ physics the true columns must obey:
   temperature jumps to exactly 0 and back within a record;
 * the dew point mapped as air temperature (:func:`dew_point_as_tair`): the identity
   e_s(dew point) = vapour pressure ties it to the VPD and RH columns;
+* the vapour pressure or the saturation vapour pressure mapped as VPD
+  (:func:`vapour_pressure_as_vpd`): RH and air temperature split e_s(T) into the
+  vapour pressure and its deficit;
 * NEE and the weather whole days apart (:func:`nee_day_shift`): a cloud changes light
   and uptake in the same record, not in the record a day later;
 * NEE with its values of one sign removed (:func:`censored_nee`): the random error puts
@@ -48,7 +51,7 @@ import numpy as np
 import pandas as pd
 
 from .uncertainty import gap_runs
-from .variables import vpd_from_rh
+from .variables import saturation_vapour_pressure, vpd_from_rh
 
 __all__ = ["GAPLESS_DAYS", "SOIL_RANGE_RATIO", "censored_nee", "dew_point_as_tair",
            "flag_as_measurement", "gapless_nee", "interpolated_nee", "months_rising_with_light", "nee_day_shift",
@@ -1128,6 +1131,104 @@ def dew_point_as_tair(tair, rh, vpd, columns=None) -> str | None:
             f"{int(usable.sum())} records): map the air temperature as tair, or respiration "
             "and the light response read temperatures several K too low")
 
+
+
+#: Lowest RH [%] of the records that judge :func:`vapour_pressure_as_vpd`: above 60 %
+#: the vapour pressure e exceeds the deficit e_s - e by 1.5 times or more and e_s
+#: exceeds it by 2.5 times or more (RH / (100 - RH), 100 / (100 - RH)), so neither can
+#: pass for the deficit within a probe's error.
+_VP_MIN_RH = 60.0
+#: Highest RH [%] of those records: near saturation a humidity probe's error of a few
+#: per cent RH (common practice, capacitive probes are specified to about 2-3 % RH (m))
+#: is a large share of the small deficit.
+_VP_MAX_RH = 95.0
+#: Median absolute log ratio [1] within which the VPD column is taken to be e or e_s
+#: (10 %: two separate probes' humidity and temperature errors, a few per cent RH and
+#: a few tenths of a K, move e by less).
+_VP_FIT = 0.10
+#: Smallest median absolute log ratio [1] of the VPD column against the deficit computed
+#: from RH and tair before it is named (a factor of 1.35, beyond the 10 % above).
+_VP_MISFIT = 0.30
+#: Records needed to judge [records]: a week of half-hours.
+_VP_MIN_RECORDS = 7 * 48
+
+
+def vapour_pressure_as_vpd(tair, rh, vpd, columns=None) -> str | None:
+    """A message where the VPD column holds the (saturation) vapour pressure, or None.
+
+    Parameters
+    ----------
+    tair : array_like
+        Air temperature [°C].
+    rh : array_like
+        Relative humidity [%].
+    vpd : array_like
+        The column mapped as VPD [hPa], after its declared unit.
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where the column fits the deficit e_s(T) (1 - RH / 100)
+        at least as well as it fits e or e_s, or fewer than a week of records lie
+        between 60 and 95 % RH.
+
+    Notes
+    -----
+    With vapour pressure e and saturation vapour pressure e_s(T), RH = 100 e / e_s(T)
+    and VPD = e_s(T) - e (Campbell & Norman 1998, ch. 3 (m)). Loggers often write e
+    (or e_s) beside RH and the deficit, and a column headed "VP" or "e_sat" mapped as
+    VPD passes every range: it has the unit and magnitude of VPD. Over records of 60 to
+    95 % RH, e is RH / (100 - RH) = 1.5 to 19 times the deficit and e_s is 100 / (100 -
+    RH) = 2.5 to 20 times it, a factor that changes with RH from record to record. The
+    column is named where its median absolute log ratio to e (or e_s) computed from RH
+    and tair is within 0.10 while its ratio to the computed deficit is more than 0.30
+    from 1 in the same measure, and more than three times as scattered about its own
+    median as the ratio to e (or e_s) is (a deficit in a wrong unit has one constant
+    ratio, which the reader's unit checks name). The light response's VPD limitation
+    (Lasslop et al. 2010) would read humid hours as dry ones.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 3 (m).
+    Lasslop, G., et al. (2010). Separation of net ecosystem exchange into assimilation
+    and respiration using a light response curve approach. Global Change Biology, 16,
+    187-208.
+    """
+    tair, rh, vpd = (np.asarray(v, dtype=float) for v in (tair, rh, vpd))
+    if not tair.size == rh.size == vpd.size:
+        return None
+    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
+        saturation = saturation_vapour_pressure(tair)
+        deficit = vpd_from_rh(rh, tair)
+        usable = (np.isfinite(saturation) & np.isfinite(deficit) & np.isfinite(vpd)
+                  & (rh >= _VP_MIN_RH) & (rh <= _VP_MAX_RH) & (vpd > 0) & (deficit > 0))
+        if int(usable.sum()) < _VP_MIN_RECORDS:
+            return None
+        column = np.log(vpd[usable])
+        to_deficit = column - np.log(deficit[usable])
+        candidates = {"the vapour pressure e": saturation[usable] * rh[usable] / 100.0,
+                      "the saturation vapour pressure e_s(tair)": saturation[usable]}
+        misfit = float(np.median(np.abs(to_deficit)))
+        scatter = float(np.median(np.abs(to_deficit - np.median(to_deficit))))
+    if misfit <= _VP_MISFIT:
+        return None
+    for label, values in candidates.items():
+        with np.errstate(invalid="ignore", divide="ignore"):
+            fit = float(np.median(np.abs(column - np.log(values))))
+        if fit <= _VP_FIT and scatter > 3.0 * fit:
+            names = columns or {}
+            return (f"the VPD column ({names.get('vpd', 'vpd')!r}) looks like {label}, not "
+                    f"the deficit: at 60-95 % RH it matches {label} (from air temperature "
+                    f"{names.get('tair', 'tair')!r} and RH {names.get('rh', 'rh')!r}) to "
+                    f"a median {math.expm1(fit):.1%}, while it is a median "
+                    f"{math.expm1(misfit):.0%} off e_s(tair) (1 - RH / "
+                    f"100) ({int(usable.sum())} records); map the deficit as vpd, or leave "
+                    "vpd unmapped to derive it from rh and tair, or the light response "
+                    "reads humid hours as dry ones")
+    return None
 
 #: Most distinct values a column mapped as a measured variable may hold, all whole
 #: numbers from 0 to :data:`_FLAG_HIGHEST`, before it is named as a flag [1]. Quality

@@ -93,6 +93,7 @@ from .column_faults import (
     swapped_temperatures,
     tair_lag,
     values_written_twice,
+    vapour_pressure_as_vpd,
     zero_coded_temperature,
 )
 from .gapfill import QUALITY_A_WINDOW_DAYS
@@ -397,6 +398,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                  screened["vpd"].to_numpy(dtype=float), names)
         if text:
             findings.append(Finding("input (tair dew point)", text, False))
+        text = vapour_pressure_as_vpd(screened["tair"].to_numpy(dtype=float),
+                                      screened["rh"].to_numpy(dtype=float),
+                                      screened["vpd"].to_numpy(dtype=float), names)
+        if text:
+            findings.append(Finding("input (vpd vapour pressure)", text, False))
     return findings
 
 
