@@ -22,6 +22,8 @@ physics the true columns must obey:
   temperature jumps to exactly 0 and back within a record;
 * the dew point mapped as air temperature (:func:`dew_point_as_tair`): the identity
   e_s(dew point) = vapour pressure ties it to the VPD and RH columns;
+* a soil temperature mapped as air temperature (:func:`delayed_tair`): the air
+  temperature that VPD and RH imply leads its daily course by hours;
 * the vapour pressure or the saturation vapour pressure mapped as VPD
   (:func:`vapour_pressure_as_vpd`): RH and air temperature split e_s(T) into the
   vapour pressure and its deficit;
@@ -1132,6 +1134,118 @@ def dew_point_as_tair(tair, rh, vpd, columns=None) -> str | None:
             "and the light response read temperatures several K too low")
 
 
+
+
+#: Smallest delay [min] of the tair column's daily course behind the air temperature
+#: that VPD and RH imply before :func:`delayed_tair` names it: heat conduction delays
+#: the soil's daily cycle by z / d radians at depth z (d about 0.1 m, Campbell & Norman
+#: 1998, ch. 8 (m); 1.9 h at 5 cm, 3.8 h at 10 cm behind the surface, which itself peaks
+#: near the air), while air-temperature sensors answer within minutes. 90 min leaves a
+#: sensor below a canopy or in a slow shield well inside.
+_DELAY_MIN_MINUTES = 90
+#: Longest delay searched [min]: a soil at 15 cm is about 6 h behind the surface.
+_DELAY_MAX_MINUTES = 8 * 60
+#: Correlation the delayed daily courses must reach [1], and by how much more than in
+#: the same record (a sinusoid 90 min late still correlates cos(22.5 deg) = 0.92 at no
+#: delay): a diurnal course that clearly fits only later.
+_DELAY_MIN_CORRELATION = 0.8
+_DELAY_MIN_GAIN = 0.05
+#: Highest RH [%] of the records whose implied temperature is used: near saturation a
+#: probe's few per cent of RH error is most of the deficit (common practice).
+_DELAY_MAX_RH = 90.0
+
+
+def _daily_anomaly(values: np.ndarray, per_day: int) -> np.ndarray:
+    """Values less their centred 24-h running mean (NaN where half the day is missing)."""
+    mean = (pd.Series(values).rolling(per_day, center=True, min_periods=per_day // 2)
+            .mean().to_numpy())
+    return values - mean
+
+
+def delayed_tair(tair, rh, vpd, interval_minutes: float, columns=None) -> str | None:
+    """A message where the tair column's daily course trails the humidity's, or None.
+
+    Parameters
+    ----------
+    tair : array_like
+        The column mapped as air temperature [°C].
+    rh : array_like
+        Relative humidity [%].
+    vpd : array_like
+        The column mapped as VPD [hPa], as the file gives it.
+    interval_minutes : float
+        Record interval [min].
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where the tair column's daily course fits the implied
+        air temperature at no delay or less than 90 min late (always so for a VPD
+        derived from RH and tair), or too few records judge.
+
+    Notes
+    -----
+    VPD = e_s(T) (1 - RH / 100) holds at one moment (Campbell & Norman 1998, ch. 3
+    (m)), so VPD and RH written by a humidity probe imply the air temperature T of
+    each record: e_s(T) = VPD / (1 - RH / 100), inverted in the Magnus form of
+    :func:`~fluxpart.variables.saturation_vapour_pressure` (records of RH up to 90 %).
+    Both temperatures less their 24-h running mean are correlated with the tair column
+    k records later, k up to 8 h. A soil temperature mapped as tair trails the air by
+    hours: heat conduction damps and delays the daily cycle with depth, by z / d radians
+    (d = (2 kappa / omega)^1/2, about 0.1 m; Campbell & Norman 1998, ch. 8 (m)). Named
+    where the best k is 90 min or more, its correlation 0.8 or more and 0.05 above the
+    same record's. On the example site the soil column mapped as tair (tsoil unmapped)
+    moved nighttime GPP by -242, Reco by -244 and daytime GPP by -200 g C m-2 without a
+    word: respiration and the light response read a damped, late temperature. A tair
+    column of the same sensor shifted by whole records is :func:`tair_lag`'s finding; a
+    shallow probe (2 cm, under an hour) is not named, nor any file without both
+    humidity columns.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 3 and 8 (m).
+    """
+    tair, rh, vpd = (np.asarray(v, dtype=float) for v in (tair, rh, vpd))
+    if not tair.size == rh.size == vpd.size or interval_minutes <= 0:
+        return None
+    per_day = int(round(1440 / interval_minutes))
+    if per_day < 4 or tair.size < 30 * per_day:
+        return None
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        usable = (np.isfinite(rh) & np.isfinite(vpd) & (rh >= 1.0) & (rh <= _DELAY_MAX_RH)
+                  & (vpd > 0))
+        saturation = np.where(usable, vpd / (1.0 - rh / 100.0), np.nan)
+        g = np.log(saturation / 6.1094)
+        implied = 243.04 * g / (17.625 - g)        # inverse of e_s = 6.1094 exp(17.625 T / (T + 243.04))
+    implied[~np.isfinite(implied) | (implied < -60) | (implied > 60)] = np.nan
+    a_implied = _daily_anomaly(implied, per_day)
+    a_tair = _daily_anomaly(tair, per_day)
+    most = int(_DELAY_MAX_MINUTES // interval_minutes)
+    scores = {}
+    for k in range(0, most + 1):
+        later = np.full(tair.size, np.nan)
+        later[:tair.size - k] = a_tair[k:]
+        scores[k] = _correlation(later, a_implied, minimum=15 * per_day)[0]
+    same = scores[0]
+    if not np.isfinite(same):
+        return None
+    best = max((k for k in scores if np.isfinite(scores[k])), key=lambda k: scores[k])
+    delay = best * interval_minutes
+    if (delay < _DELAY_MIN_MINUTES or scores[best] < _DELAY_MIN_CORRELATION
+            or scores[best] - same < _DELAY_MIN_GAIN):
+        return None
+    names = columns or {}
+    return (f"air temperature (column {names.get('tair', 'tair')!r}) follows the air "
+            f"temperature that VPD ({names.get('vpd', 'vpd')!r}) and RH "
+            f"({names.get('rh', 'rh')!r}) imply {delay / 60:g} h later (correlation of "
+            f"their daily courses {scores[best]:.2f} there, {same:.2f} in the same record): "
+            "air-temperature sensors answer within minutes, while a soil temperature "
+            "trails the air by hours; map the air temperature as tair (a soil "
+            "temperature as tsoil), or respiration and the light response read a damped, "
+            "late temperature (or align a logger whose clock is that far off)")
 
 #: Lowest RH [%] of the records that judge :func:`vapour_pressure_as_vpd`: above 60 %
 #: the vapour pressure e exceeds the deficit e_s - e by 1.5 times or more and e_s
