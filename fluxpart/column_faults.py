@@ -22,6 +22,11 @@ physics the true columns must obey:
   temperature jumps to exactly 0 and back within a record;
 * the dew point mapped as air temperature (:func:`dew_point_as_tair`): the identity
   e_s(dew point) = vapour pressure ties it to the VPD and RH columns;
+* a soil temperature mapped as air temperature (:func:`delayed_tair`): the air
+  temperature that VPD and RH imply leads its daily course by hours;
+* the vapour pressure or the saturation vapour pressure mapped as VPD
+  (:func:`vapour_pressure_as_vpd`): RH and air temperature split e_s(T) into the
+  vapour pressure and its deficit;
 * NEE and the weather whole days apart (:func:`nee_day_shift`): a cloud changes light
   and uptake in the same record, not in the record a day later;
 * NEE with its values of one sign removed (:func:`censored_nee`): the random error puts
@@ -48,7 +53,7 @@ import numpy as np
 import pandas as pd
 
 from .uncertainty import gap_runs
-from .variables import vpd_from_rh
+from .variables import saturation_vapour_pressure, vpd_from_rh
 
 __all__ = ["GAPLESS_DAYS", "SOIL_RANGE_RATIO", "censored_nee", "dew_point_as_tair",
            "flag_as_measurement", "gapless_nee", "interpolated_nee", "months_rising_with_light", "nee_day_shift",
@@ -1128,6 +1133,216 @@ def dew_point_as_tair(tair, rh, vpd, columns=None) -> str | None:
             f"{int(usable.sum())} records): map the air temperature as tair, or respiration "
             "and the light response read temperatures several K too low")
 
+
+
+
+#: Smallest delay [min] of the tair column's daily course behind the air temperature
+#: that VPD and RH imply before :func:`delayed_tair` names it: heat conduction delays
+#: the soil's daily cycle by z / d radians at depth z (d about 0.1 m, Campbell & Norman
+#: 1998, ch. 8 (m); 1.9 h at 5 cm, 3.8 h at 10 cm behind the surface, which itself peaks
+#: near the air), while air-temperature sensors answer within minutes. 90 min leaves a
+#: sensor below a canopy or in a slow shield well inside.
+_DELAY_MIN_MINUTES = 90
+#: Longest delay searched [min]: a soil at 15 cm is about 6 h behind the surface.
+_DELAY_MAX_MINUTES = 8 * 60
+#: Correlation the delayed daily courses must reach [1], and by how much more than in
+#: the same record (a sinusoid 90 min late still correlates cos(22.5 deg) = 0.92 at no
+#: delay): a diurnal course that clearly fits only later.
+_DELAY_MIN_CORRELATION = 0.8
+_DELAY_MIN_GAIN = 0.05
+#: Highest RH [%] of the records whose implied temperature is used: near saturation a
+#: probe's few per cent of RH error is most of the deficit (common practice).
+_DELAY_MAX_RH = 90.0
+
+
+def _daily_anomaly(values: np.ndarray, per_day: int) -> np.ndarray:
+    """Values less their centred 24-h running mean (NaN where half the day is missing)."""
+    mean = (pd.Series(values).rolling(per_day, center=True, min_periods=per_day // 2)
+            .mean().to_numpy())
+    return values - mean
+
+
+def delayed_tair(tair, rh, vpd, interval_minutes: float, columns=None) -> str | None:
+    """A message where the tair column's daily course trails the humidity's, or None.
+
+    Parameters
+    ----------
+    tair : array_like
+        The column mapped as air temperature [°C].
+    rh : array_like
+        Relative humidity [%].
+    vpd : array_like
+        The column mapped as VPD [hPa], as the file gives it.
+    interval_minutes : float
+        Record interval [min].
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where the tair column's daily course fits the implied
+        air temperature at no delay or less than 90 min late (always so for a VPD
+        derived from RH and tair), or too few records judge.
+
+    Notes
+    -----
+    VPD = e_s(T) (1 - RH / 100) holds at one moment (Campbell & Norman 1998, ch. 3
+    (m)), so VPD and RH written by a humidity probe imply the air temperature T of
+    each record: e_s(T) = VPD / (1 - RH / 100), inverted in the Magnus form of
+    :func:`~fluxpart.variables.saturation_vapour_pressure` (records of RH up to 90 %).
+    Both temperatures less their 24-h running mean are correlated with the tair column
+    k records later, k up to 8 h. A soil temperature mapped as tair trails the air by
+    hours: heat conduction damps and delays the daily cycle with depth, by z / d radians
+    (d = (2 kappa / omega)^1/2, about 0.1 m; Campbell & Norman 1998, ch. 8 (m)). Named
+    where the best k is 90 min or more, its correlation 0.8 or more and 0.05 above the
+    same record's. On the example site the soil column mapped as tair (tsoil unmapped)
+    moved nighttime GPP by -242, Reco by -244 and daytime GPP by -200 g C m-2 without a
+    word: respiration and the light response read a damped, late temperature. A tair
+    column of the same sensor shifted by whole records is :func:`tair_lag`'s finding; a
+    shallow probe (2 cm, under an hour) is not named, nor any file without both
+    humidity columns.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 3 and 8 (m).
+    """
+    tair, rh, vpd = (np.asarray(v, dtype=float) for v in (tair, rh, vpd))
+    if not tair.size == rh.size == vpd.size or interval_minutes <= 0:
+        return None
+    per_day = int(round(1440 / interval_minutes))
+    if per_day < 4 or tair.size < 30 * per_day:
+        return None
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        usable = (np.isfinite(rh) & np.isfinite(vpd) & (rh >= 1.0) & (rh <= _DELAY_MAX_RH)
+                  & (vpd > 0))
+        saturation = np.where(usable, vpd / (1.0 - rh / 100.0), np.nan)
+        g = np.log(saturation / 6.1094)
+        implied = 243.04 * g / (17.625 - g)        # inverse of e_s = 6.1094 exp(17.625 T / (T + 243.04))
+    implied[~np.isfinite(implied) | (implied < -60) | (implied > 60)] = np.nan
+    a_implied = _daily_anomaly(implied, per_day)
+    a_tair = _daily_anomaly(tair, per_day)
+    most = int(_DELAY_MAX_MINUTES // interval_minutes)
+    scores = {}
+    for k in range(0, most + 1):
+        later = np.full(tair.size, np.nan)
+        later[:tair.size - k] = a_tair[k:]
+        scores[k] = _correlation(later, a_implied, minimum=15 * per_day)[0]
+    same = scores[0]
+    if not np.isfinite(same):
+        return None
+    best = max((k for k in scores if np.isfinite(scores[k])), key=lambda k: scores[k])
+    delay = best * interval_minutes
+    if (delay < _DELAY_MIN_MINUTES or scores[best] < _DELAY_MIN_CORRELATION
+            or scores[best] - same < _DELAY_MIN_GAIN):
+        return None
+    names = columns or {}
+    return (f"air temperature (column {names.get('tair', 'tair')!r}) follows the air "
+            f"temperature that VPD ({names.get('vpd', 'vpd')!r}) and RH "
+            f"({names.get('rh', 'rh')!r}) imply {delay / 60:g} h later (correlation of "
+            f"their daily courses {scores[best]:.2f} there, {same:.2f} in the same record): "
+            "air-temperature sensors answer within minutes, while a soil temperature "
+            "trails the air by hours; map the air temperature as tair (a soil "
+            "temperature as tsoil), or respiration and the light response read a damped, "
+            "late temperature (or align a logger whose clock is that far off)")
+
+#: Lowest RH [%] of the records that judge :func:`vapour_pressure_as_vpd`: above 60 %
+#: the vapour pressure e exceeds the deficit e_s - e by 1.5 times or more and e_s
+#: exceeds it by 2.5 times or more (RH / (100 - RH), 100 / (100 - RH)), so neither can
+#: pass for the deficit within a probe's error.
+_VP_MIN_RH = 60.0
+#: Highest RH [%] of those records: near saturation a humidity probe's error of a few
+#: per cent RH (common practice, capacitive probes are specified to about 2-3 % RH (m))
+#: is a large share of the small deficit.
+_VP_MAX_RH = 95.0
+#: Median absolute log ratio [1] within which the VPD column is taken to be e or e_s
+#: (10 %: two separate probes' humidity and temperature errors, a few per cent RH and
+#: a few tenths of a K, move e by less).
+_VP_FIT = 0.10
+#: Smallest median absolute log ratio [1] of the VPD column against the deficit computed
+#: from RH and tair before it is named (a factor of 1.35, beyond the 10 % above).
+_VP_MISFIT = 0.30
+#: Records needed to judge [records]: a week of half-hours.
+_VP_MIN_RECORDS = 7 * 48
+
+
+def vapour_pressure_as_vpd(tair, rh, vpd, columns=None) -> str | None:
+    """A message where the VPD column holds the (saturation) vapour pressure, or None.
+
+    Parameters
+    ----------
+    tair : array_like
+        Air temperature [°C].
+    rh : array_like
+        Relative humidity [%].
+    vpd : array_like
+        The column mapped as VPD [hPa], after its declared unit.
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where the column fits the deficit e_s(T) (1 - RH / 100)
+        at least as well as it fits e or e_s, or fewer than a week of records lie
+        between 60 and 95 % RH.
+
+    Notes
+    -----
+    With vapour pressure e and saturation vapour pressure e_s(T), RH = 100 e / e_s(T)
+    and VPD = e_s(T) - e (Campbell & Norman 1998, ch. 3 (m)). Loggers often write e
+    (or e_s) beside RH and the deficit, and a column headed "VP" or "e_sat" mapped as
+    VPD passes every range: it has the unit and magnitude of VPD. Over records of 60 to
+    95 % RH, e is RH / (100 - RH) = 1.5 to 19 times the deficit and e_s is 100 / (100 -
+    RH) = 2.5 to 20 times it, a factor that changes with RH from record to record. The
+    column is named where its median absolute log ratio to e (or e_s) computed from RH
+    and tair is within 0.10 while its ratio to the computed deficit is more than 0.30
+    from 1 in the same measure, and more than three times as scattered about its own
+    median as the ratio to e (or e_s) is (a deficit in a wrong unit has one constant
+    ratio, which the reader's unit checks name). The light response's VPD limitation
+    (Lasslop et al. 2010) would read humid hours as dry ones.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 3 (m).
+    Lasslop, G., et al. (2010). Separation of net ecosystem exchange into assimilation
+    and respiration using a light response curve approach. Global Change Biology, 16,
+    187-208.
+    """
+    tair, rh, vpd = (np.asarray(v, dtype=float) for v in (tair, rh, vpd))
+    if not tair.size == rh.size == vpd.size:
+        return None
+    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
+        saturation = saturation_vapour_pressure(tair)
+        deficit = vpd_from_rh(rh, tair)
+        usable = (np.isfinite(saturation) & np.isfinite(deficit) & np.isfinite(vpd)
+                  & (rh >= _VP_MIN_RH) & (rh <= _VP_MAX_RH) & (vpd > 0) & (deficit > 0))
+        if int(usable.sum()) < _VP_MIN_RECORDS:
+            return None
+        column = np.log(vpd[usable])
+        to_deficit = column - np.log(deficit[usable])
+        candidates = {"the vapour pressure e": saturation[usable] * rh[usable] / 100.0,
+                      "the saturation vapour pressure e_s(tair)": saturation[usable]}
+        misfit = float(np.median(np.abs(to_deficit)))
+        scatter = float(np.median(np.abs(to_deficit - np.median(to_deficit))))
+    if misfit <= _VP_MISFIT:
+        return None
+    for label, values in candidates.items():
+        with np.errstate(invalid="ignore", divide="ignore"):
+            fit = float(np.median(np.abs(column - np.log(values))))
+        if fit <= _VP_FIT and scatter > 3.0 * fit:
+            names = columns or {}
+            return (f"the VPD column ({names.get('vpd', 'vpd')!r}) looks like {label}, not "
+                    f"the deficit: at 60-95 % RH it matches {label} (from air temperature "
+                    f"{names.get('tair', 'tair')!r} and RH {names.get('rh', 'rh')!r}) to "
+                    f"a median {math.expm1(fit):.1%}, while it is a median "
+                    f"{math.expm1(misfit):.0%} off e_s(tair) (1 - RH / "
+                    f"100) ({int(usable.sum())} records); map the deficit as vpd, or leave "
+                    "vpd unmapped to derive it from rh and tair, or the light response "
+                    "reads humid hours as dry ones")
+    return None
 
 #: Most distinct values a column mapped as a measured variable may hold, all whole
 #: numbers from 0 to :data:`_FLAG_HIGHEST`, before it is named as a flag [1]. Quality

@@ -83,6 +83,7 @@ import pandas as pd
 
 from .column_faults import (
     censored_nee,
+    delayed_tair,
     dew_point_as_tair,
     flag_as_measurement,
     gapless_nee,
@@ -93,6 +94,7 @@ from .column_faults import (
     swapped_temperatures,
     tair_lag,
     values_written_twice,
+    vapour_pressure_as_vpd,
     zero_coded_temperature,
 )
 from .gapfill import QUALITY_A_WINDOW_DAYS
@@ -392,11 +394,22 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                         screened["vpd"].to_numpy(dtype=float), interval_minutes, names)
         if text:
             findings.append(Finding("input (tair)", text, False))
+        else:
+            text = delayed_tair(screened["tair"].to_numpy(dtype=float),
+                                screened["rh"].to_numpy(dtype=float),
+                                screened["vpd"].to_numpy(dtype=float), interval_minutes, names)
+            if text:
+                findings.append(Finding("input (tair delayed)", text, False))
         text = dew_point_as_tair(screened["tair"].to_numpy(dtype=float),
                                  screened["rh"].to_numpy(dtype=float),
                                  screened["vpd"].to_numpy(dtype=float), names)
         if text:
             findings.append(Finding("input (tair dew point)", text, False))
+        text = vapour_pressure_as_vpd(screened["tair"].to_numpy(dtype=float),
+                                      screened["rh"].to_numpy(dtype=float),
+                                      screened["vpd"].to_numpy(dtype=float), names)
+        if text:
+            findings.append(Finding("input (vpd vapour pressure)", text, False))
     return findings
 
 

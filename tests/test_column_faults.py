@@ -10,6 +10,8 @@ Norman 1998, ch. 3 (m)), e_s from fluxpart.variables (Magnus form, checked again
 handbook values in test_variables).
 """
 
+import re
+
 import numpy as np
 import pandas as pd
 import pytest
@@ -18,6 +20,7 @@ from fluxpart.column_faults import (
     GAPLESS_DAYS,
     SOIL_RANGE_RATIO,
     censored_nee,
+    delayed_tair,
     dew_point_as_tair,
     flag_as_measurement,
     gapless_nee,
@@ -28,6 +31,7 @@ from fluxpart.column_faults import (
     swapped_temperatures,
     tair_lag,
     values_written_twice,
+    vapour_pressure_as_vpd,
     zero_coded_temperature,
 )
 from fluxpart.preflight import _column_faults, _flags_as_data, _written_twice
@@ -598,3 +602,84 @@ def test_measured_columns_are_not_named_as_flags():
     assert flag_as_measurement(np.tile([-1.0, 0.0, 1.0], n // 3), "tsoil") is None
     # a temperature logged in whole K that spans more than five values is measured
     assert flag_as_measurement(np.round(air), "tair") is None
+
+
+def tetens_saturation(air):
+    """Saturation vapour pressure [hPa] by the Magnus form with Tetens' constants (6.1078,
+    17.27, 237.3; Murray 1967 (m)): another form than the package's, as a logger would
+    compute it."""
+    return 6.1078 * np.exp(17.27 * air / (237.3 + air))
+
+
+def test_vapour_pressure_or_its_saturation_mapped_as_vpd_is_named():
+    # RH = 100 e / e_s(T) and VPD = e_s(T) - e (Campbell & Norman 1998, ch. 3 (m))
+    air, rh, _ = humidity_record()
+    names = {"vpd": "VP_hPa", "rh": "RH", "tair": "Ta"}
+    e = np.round(tetens_saturation(air) * rh / 100.0, 2)
+    text = vapour_pressure_as_vpd(air, rh, e, columns=names)
+    assert text is not None and "'VP_hPa'" in text and "the vapour pressure e" in text
+    saturation = np.round(tetens_saturation(air), 2)
+    text = vapour_pressure_as_vpd(air, rh, saturation, columns=names)
+    assert text is not None and "saturation vapour pressure" in text
+    # through the preflight, as `check` and `run` see it
+    frame = pd.DataFrame({"tair": air, "rh": rh, "vpd": e})
+    assert "input (vpd vapour pressure)" in [
+        f.stage for f in _column_faults(frame, np.zeros(air.size), STEP)]
+
+
+def test_a_deficit_from_other_probes_or_in_another_unit_is_quiet():
+    air, rh, vpd = humidity_record()
+    assert vapour_pressure_as_vpd(air, rh, vpd) is None
+    # VPD written by a second probe: its own RH reading 3 % higher, its temperature
+    # 0.5 K warmer, Tetens' constants; capacitive RH probes hold about 2-3 % RH (m)
+    rng = np.random.default_rng(5)
+    other_rh = np.clip(rh + 3.0 + rng.normal(0.0, 1.0, rh.size), 0.0, 99.0)
+    other = tetens_saturation(air + 0.5) * (1.0 - other_rh / 100.0)
+    assert vapour_pressure_as_vpd(air, rh, other) is None
+    # a deficit in kPa read as hPa: one constant ratio, the reader's unit checks' case
+    assert vapour_pressure_as_vpd(air, rh, vpd / 10.0) is None
+    # too few humid records to judge (a desert's days): not judged
+    dry = np.clip(rh, None, 55.0)
+    assert vapour_pressure_as_vpd(air, dry, tetens_saturation(air) * dry / 100.0) is None
+
+
+def test_soil_temperature_mapped_as_air_temperature_is_named():
+    # known-truth recovery: the soil at 10 cm follows heat conduction, its daily cycle
+    # z / d = 1 rad (3.8 h) behind the surface (Campbell & Norman 1998, ch. 8 (m)), so
+    # 2.8 h behind the air; VPD and RH are the air's (Campbell & Norman 1998, ch. 3 (m))
+    air, rh, vpd = humidity_record()
+    _, soil = temperatures(0.10)
+    names = {"tair": "Ts_10cm", "rh": "RH", "vpd": "VPD"}
+    text = delayed_tair(soil, rh, vpd, STEP, columns=names)
+    assert text is not None and "'Ts_10cm'" in text
+    delay = float(re.search(r"imply ([0-9.]+) h later", text).group(1))
+    assert abs(delay - 2.8) <= STEP / 60.0          # to the record
+    # the same through the preflight, as `check` and `run` see it
+    frame = pd.DataFrame({"tair": soil, "rh": rh, "vpd": vpd})
+    assert "input (tair delayed)" in [
+        f.stage for f in _column_faults(frame, np.zeros(air.size), STEP)]
+    # hourly records: the same delay in half the records
+    assert delayed_tair(soil[::2], rh[::2], vpd[::2], 2 * STEP) is not None
+
+
+def test_air_temperature_of_this_or_another_sensor_or_a_shallow_probe_is_quiet():
+    air, rh, vpd = humidity_record()
+    assert delayed_tair(air, rh, vpd, STEP) is None
+    # another sensor, 1.5 K warmer by day (a radiation error): its daily course leads
+    hours = np.arange(air.size) % PER_DAY * STEP / 60.0
+    warm = air + 1.5 * np.clip(np.sin(np.pi * (hours - 6.0) / 12.0), 0.0, None)
+    assert delayed_tair(warm, rh, vpd, STEP) is None
+    # a probe at 2 cm trails the air by less than an hour: not judged a soil
+    _, shallow = temperatures(0.02)
+    assert delayed_tair(shallow, rh, vpd, STEP) is None
+    # a VPD derived from RH and the column itself implies the column: no delay
+    _, soil = temperatures(0.10)
+    assert delayed_tair(soil, rh, vpd_from_rh(rh, soil), STEP) is None
+
+
+def test_a_shifted_air_temperature_is_named_once_as_shifted():
+    air, rh, vpd = humidity_record()
+    late = np.concatenate([np.full(4, np.nan), air[:-4]])     # 2 h late: a logger's clock
+    frame = pd.DataFrame({"tair": late, "rh": rh, "vpd": vpd})
+    stages = [f.stage for f in _column_faults(frame, np.zeros(air.size), STEP)]
+    assert "input (tair)" in stages and "input (tair delayed)" not in stages
