@@ -861,6 +861,11 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                 "missing codes, or remove the storage mapping to use the turbulent flux alone")
         converted["nee"] = turbulent + storage
         source_of["nee"] = f"{mapping['nee']} + {mapping['storage']} (storage)"
+        from .column_faults import storage_in_turbulent_flux  # only where storage is mapped
+
+        counted_twice = storage_in_turbulent_flux(turbulent, storage, starts, columns=mapping)
+        if counted_twice:
+            warnings.append(f"storage: {counted_twice}")
         if storage_missing:
             warnings.append(f"storage: {storage_missing} record(s) have a turbulent flux in "
                             f"{mapping['nee']!r} but no storage value in {mapping['storage']!r};"

@@ -28,6 +28,7 @@ from fluxpart.column_faults import (
     months_rising_with_light,
     nee_day_shift,
     nee_lag,
+    storage_in_turbulent_flux,
     swapped_temperatures,
     tair_lag,
     values_written_twice,
@@ -683,3 +684,88 @@ def test_a_shifted_air_temperature_is_named_once_as_shifted():
     frame = pd.DataFrame({"tair": late, "rh": rh, "vpd": vpd})
     stages = [f.stage for f in _column_faults(frame, np.zeros(air.size), STEP)]
     assert "input (tair)" in stages and "input (tair delayed)" not in stages
+
+
+# ------------------------------------------------------------ storage counted twice
+
+
+def stored_below_sensor(days=120, store_scale=1.0, noise=1.0, seed=0):
+    """Invented tower records from the mass balance of the air below the sensor.
+
+    The ecosystem exchanges NEE with the air below the sensor; the sensor sees the
+    turbulent flux F = k C of the store C, vented at a rate k that grows with u* (calm
+    nights vent little); the storage term is S = dC/dt = NEE - F, so NEE = F + S
+    (Finnigan 2006, Agric. For. Meteorol. 136:108-113). Returns (stamps, NEE, the
+    turbulent flux with random error, S) [µmol m-2 s-1]; `store_scale` scales the store
+    (a short canopy holds little)."""
+    rng = np.random.default_rng(seed)
+    stamps = pd.date_range("2021-04-01", periods=days * PER_DAY, freq=f"{STEP}min")
+    hour = (stamps.hour + stamps.minute / 60).to_numpy()
+    light = np.clip(np.sin(np.pi * (hour - 6) / 12), 0, None)
+    temperature = 12 + 5 * np.sin(2 * np.pi * (hour - 9) / 24) \
+        + np.repeat(rng.normal(0, 2, days), PER_DAY)
+    nee = 2.5 * 2.0 ** ((temperature - 10) / 10) - 18 * light    # Q10 of 2 (common practice)
+    windiness = np.repeat(rng.gamma(2.0, 0.5, days), PER_DAY)
+    vented = np.clip(windiness * (0.15 + 0.35 * light) / 0.3, 0, 1) * 0.9
+    store, turbulent = 0.0, np.empty(nee.size)
+    for i, exchange in enumerate(nee):
+        store += exchange
+        turbulent[i] = vented[i] * store
+        store -= turbulent[i]
+    storage = (nee - turbulent) * store_scale
+    measured = nee - storage + rng.normal(0, noise, nee.size)
+    return stamps, nee, measured, storage
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_turbulent_flux_beside_its_storage_is_quiet(seed):
+    """A turbulent flux trades against the storage term (NEE = F + S): not named."""
+    stamps, _, turbulent, storage = stored_below_sensor(seed=seed)
+    assert storage_in_turbulent_flux(turbulent, storage, stamps) is None
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_flux_that_already_holds_storage_is_named(seed):
+    """NEE (turbulent flux + storage) mapped as the turbulent flux beside the storage
+    column: adding it again counts the store twice; the message names both columns."""
+    stamps, _, turbulent, storage = stored_below_sensor(seed=seed)
+    message = storage_in_turbulent_flux(turbulent + storage, storage, stamps,
+                                        columns={"nee": "co2_nee", "storage": "co2_sc"})
+    assert message is not None
+    assert "'co2_nee'" in message and "'co2_sc'" in message
+    assert "remove the storage mapping" in message
+    slope = float(re.search(r"slope ([+-][0-9.]+) ±", message).group(1))
+    assert abs(slope) < 0.2
+
+
+def test_small_store_is_still_told_apart_or_left_alone():
+    """A short canopy's store (a fifth of the forest's): the slope is still resolved on
+    120 days, so the right mapping stays quiet and the double one is named."""
+    stamps, _, turbulent, storage = stored_below_sensor(store_scale=0.2, seed=4)
+    assert storage_in_turbulent_flux(turbulent, storage, stamps) is None
+    assert storage_in_turbulent_flux(turbulent + storage, storage, stamps) is not None
+
+
+def test_storage_with_only_a_fixed_diurnal_course_cannot_tell():
+    """A storage column that repeats one diurnal course has no night-to-night anomaly,
+    so nothing is judged (the logger example of this project writes such a column)."""
+    stamps, nee, _, _ = stored_below_sensor()
+    hour = (stamps.hour + stamps.minute / 60).to_numpy()
+    storage = 1.5 * np.sin((hour - 15) / 24 * 2 * np.pi)
+    assert storage_in_turbulent_flux(nee, storage, stamps) is None
+    assert storage_in_turbulent_flux(nee - storage, storage, stamps) is None
+
+
+def test_too_few_days_cannot_tell_storage():
+    """Fewer than 8 blocks of 10 days with both columns: nothing is judged."""
+    stamps, _, turbulent, storage = stored_below_sensor(days=60)
+    assert storage_in_turbulent_flux(turbulent + storage, storage, stamps) is None
+
+
+def test_storage_of_the_opposite_sign_is_named_as_such():
+    """A storage column written negative while CO2 accumulates: the turbulent flux rises
+    with it (slope about +1), and the message names the sign, not a double count."""
+    stamps, _, turbulent, storage = stored_below_sensor(seed=5)
+    message = storage_in_turbulent_flux(turbulent, -storage, stamps)
+    assert message is not None and "opposite sign" in message
+    assert "already holds" not in message

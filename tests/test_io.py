@@ -1457,6 +1457,42 @@ def test_storage_added_to_turbulent_flux(tmp_path):
     assert report.columns["nee"] == "co2_turb + sc (storage)"
 
 
+@pytest.mark.parametrize("already_included", [False, True])
+def test_flux_holding_storage_already_is_named_when_storage_is_added(tmp_path,
+                                                                     already_included):
+    """The reader adds the storage column to the flux mapped as nee (NEE = turbulent
+    flux + storage, Finnigan 2006); where that flux already holds the storage term, it is
+    counted twice, and the reader's warning names both columns. Invented records from
+    the mass balance of the air below the sensor (the storage term S = NEE - F, F the
+    store vented as u* allows); 120 days, so the night-to-night trade is resolved."""
+    rng = np.random.default_rng(3)
+    days = 120
+    starts = pd.date_range("2021-04-01", periods=days * 48, freq="30min")
+    hour = (starts.hour + starts.minute / 60).to_numpy()
+    light = np.clip(np.sin((hour - 6) / 12 * np.pi), 0, None)
+    nee = 3.0 - 15 * light + np.repeat(rng.normal(0, 0.5, days), 48)
+    vented = np.clip(np.repeat(rng.gamma(2.0, 0.5, days), 48) * (0.2 + 0.4 * light), 0, 0.9)
+    store, turbulent = 0.0, np.empty(nee.size)
+    for i, exchange in enumerate(nee):
+        store += exchange
+        turbulent[i] = vented[i] * store
+        store -= turbulent[i]
+    storage = nee - turbulent
+    flux = nee if already_included else turbulent
+    records = pd.DataFrame({
+        "co2_turb": np.round(flux + rng.normal(0, 1.0, nee.size), 3),
+        "sc": np.round(storage, 3), "sw_in": np.round(800 * light, 1),
+        "t_air": np.round(12 + 8 * light, 2), "vpd_air": np.round(2 + 14 * light, 2),
+        "u_fric": np.round(0.1 + 0.5 * vented, 3)}, index=starts)
+    _, report = _read(_write(tmp_path / "t.csv", records),
+                      columns=MAPPING | {"nee": "co2_turb", "storage": "sc"})
+    named = [w for w in report.warnings if "already holds the storage term" in w]
+    if already_included:
+        assert len(named) == 1 and "'co2_turb'" in named[0] and "'sc'" in named[0]
+    else:
+        assert named == []
+
+
 def test_undeclared_missing_code_in_the_storage_column_is_named(tmp_path):
     """NEE is the turbulent flux plus storage: a code in the storage column makes the sum
     implausible, and the hint names the storage column (the turbulent values are fine)."""
