@@ -8,6 +8,7 @@ nearest valid one.
 
 from __future__ import annotations
 
+import datetime
 import difflib
 import json
 import math
@@ -423,6 +424,17 @@ class Config:
         year starts) and gives ``period_start`` / ``period_end``. 29 February is
         refused (not in every year). u* thresholds and the annual E0 stay per
         calendar year of data.
+    events : tuple of str
+        Dates (``"YYYY-MM-DD"``) or date-times (``"YYYY-MM-DD HH:MM"``) in the record's
+        local standard time at which the ecosystem changed abruptly: a harvest, a cut,
+        a fire, a thinning, ploughing (new in 0.22.0). NEE gaps are filled from the
+        records on their own side of every event only (:func:`fluxpart.gapfill.
+        fill_marginal`, ``breaks``), in the central fill, the u* scenario runs and the
+        artificial gaps of the gap-filling uncertainty alike, so that an outage across
+        a harvest is not filled from the canopy before it, nor the days before it from
+        bare ground. A record starting at an event's time lies after it. Default: none.
+        The partitionings' windows (4 to 15 days) are not cut at events. A TOML date
+        (``events = [2021-07-20]``) is read as that date.
 
     Notes
     -----
@@ -502,6 +514,7 @@ class Config:
     agreement_margin: float = 0.15
     clock_check: str = "refuse"
     year_start: str = "01-01"
+    events: tuple[str, ...] = ()
 
     def __post_init__(self):
         _check(self)
@@ -557,6 +570,7 @@ class Config:
         out["e0_bounds"] = list(self.e0_bounds)
         out["daytime_e0_window_days"] = list(self.daytime_e0_window_days)
         out["ustar_scenarios"] = list(self.ustar_scenarios)
+        out["events"] = list(self.events)
         return out
 
 
@@ -865,6 +879,7 @@ def _check(config: Config) -> None:
         _refuse("seed", seed, "a whole number >= 0; the seed of every random draw")
     from .timestamps import _month_day
     _month_day(config.year_start)  # ConfigError naming [processing] year_start
+    object.__setattr__(config, "events", _events(config.events))
     for name, choices in _CHOICES.items():
         value = getattr(config, name)
         if not isinstance(value, str) or value not in choices:
@@ -937,6 +952,30 @@ def _check(config: Config) -> None:
             low_high[0] <= fallback <= low_high[1]):
         _refuse("e0_fallback", fallback, f"a value inside e0_bounds = {setting_text(low_high)} "
                 "K, the range a fitted E0 must lie in", problem="is out of range")
+
+
+def _events(events) -> tuple:
+    """``Config.events`` as sorted distinct ISO 8601 texts (``YYYY-MM-DD`` or
+    ``YYYY-MM-DDTHH:MM``); ConfigError naming the setting for anything else."""
+    items = events if isinstance(events, (tuple, list)) else (events,)
+    out = []
+    for item in items:
+        moment = item
+        if isinstance(item, str):
+            try:
+                moment = datetime.datetime.fromisoformat(item.strip())
+            except ValueError:
+                moment = None
+        elif isinstance(item, datetime.date) and not isinstance(item, datetime.datetime):
+            moment = datetime.datetime(item.year, item.month, item.day)
+        if (not isinstance(moment, datetime.datetime) or moment.tzinfo is not None
+                or moment.second or moment.microsecond):
+            _refuse("events", events, "a list of dates \"YYYY-MM-DD\" or date-times "
+                    "\"YYYY-MM-DD HH:MM\" in the record's local standard time (no UTC "
+                    "offset), e.g. [\"2021-07-20\"] for a harvest on 20 July 2021")
+        out.append(moment.strftime("%Y-%m-%d") if moment.time() == datetime.time()
+                   else moment.strftime("%Y-%m-%dT%H:%M"))
+    return tuple(sorted(set(out)))
 
 
 def _is_number(value) -> bool:

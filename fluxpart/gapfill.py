@@ -154,6 +154,8 @@ __all__ = [
     "QUALITY_NAMES",
     "QUALITY_UNFILLED",
     "driver_conditions",
+    "event_breaks",
+    "event_notes",
     "fill_drivers",
     "fill_frame",
     "fill_marginal",
@@ -1126,7 +1128,7 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
                   min_donors=_MIN_DONORS, gaps=None, rg_window="centred",
                   night_rg_threshold=_NIGHT_RG_THRESHOLD, clearness=None,
                   clearness_tolerance=_CLEARNESS_TOLERANCE,
-                  estimate="local_linear") -> pd.DataFrame:
+                  estimate="local_linear", breaks=None) -> pd.DataFrame:
     """Fill the gaps of a flux series by marginal distribution sampling.
 
     Parameters
@@ -1200,6 +1202,12 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         (:func:`local_linear_correction`), which removes the bias of a gap at the
         edge of its donors' conditions; ``"donor_mean"``: the donors' mean, as
         Reichstein et al. (2005) fill. The diurnal-course step is a mean in both.
+    breaks : array_like of int, optional
+        Record positions where the ecosystem changed abruptly (a harvest, a cut, a
+        fire; :func:`event_breaks` of ``Config.events``): the record is filled piece
+        by piece, each gap from the records of its own piece only, so that no fill
+        draws on the canopy before an event for a gap after it, or the reverse. The
+        windows of each piece widen within it. ``None`` (default): one piece.
 
     Returns
     -------
@@ -1279,14 +1287,73 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
                      _check_setting("gapfill_clearness_tolerance", clearness_tolerance))
         all_conditions.append(condition)
         radiation_conditions.append(condition)
-    columns = _fill_series(
-        values, per_day, diurnal_records,
-        all_conditions=all_conditions,
-        radiation_conditions=radiation_conditions,
-        max_window_days=max_window_days, min_donors=min_donors, is_night=night,
-        wanted=wanted, last_resort=True, local_linear=estimate == "local_linear",
-        radiation_regressors=list(zip((tair, vpd), tolerances[1:], strict=True)))
+    regressors = list(zip((tair, vpd), tolerances[1:], strict=True))
+    pieces = []
+    for piece in _pieces(len(index), breaks):
+        def cut(pairs, piece=piece):
+            return [(driver[piece], tolerance[piece] if np.ndim(tolerance) else tolerance)
+                    for driver, tolerance in pairs]
+
+        pieces.append(_fill_series(
+            values[piece], per_day, diurnal_records,
+            all_conditions=cut(all_conditions),
+            radiation_conditions=cut(radiation_conditions),
+            max_window_days=max_window_days, min_donors=min_donors,
+            is_night=None if night is None else night[piece],
+            wanted=None if wanted is None else wanted[piece], last_resort=True,
+            local_linear=estimate == "local_linear", radiation_regressors=cut(regressors)))
+    columns = pieces[0] if len(pieces) == 1 else tuple(
+        np.concatenate(parts) for parts in zip(*pieces, strict=True))
     return _output_frame(index, *columns)
+
+
+def event_breaks(index, events) -> np.ndarray:
+    """Record positions where an event starts a new piece of the record.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Record starts (local standard time).
+    events : sequence of str
+        Event dates or date-times (ISO 8601, local standard time), e.g.
+        ``Config.events``.
+
+    Returns
+    -------
+    numpy.ndarray of int
+        Sorted distinct positions p, 0 < p < len(index): records from p on lie after
+        the event (a record starting at the event's time is after it). Events before
+        the second record or after the last are left out.
+    """
+    if not len(events):
+        return np.array([], dtype=np.int64)
+    stamps = pd.DatetimeIndex([pd.Timestamp(event) for event in events]).sort_values()
+    positions = np.unique(index.searchsorted(stamps, side="left"))
+    return positions[(positions > 0) & (positions < len(index))].astype(np.int64)
+
+
+def event_notes(index, events) -> list:
+    """Warnings for ``Config.events`` that cut no piece off the record `index`.
+
+    An event before the record's second record or after its last one changes no fill
+    (:func:`event_breaks`): most likely a mistyped year, which the user should see.
+    """
+    if not len(events) or not len(index):
+        return []
+    outside = [event for event in events
+               if not index[0] < pd.Timestamp(event) <= index[-1]]
+    if not outside:
+        return []
+    return [f"events: {', '.join(outside)} lie{'s' if len(outside) == 1 else ''} outside the "
+            f"record ({index[0]:%Y-%m-%d %H:%M} to {index[-1]:%Y-%m-%d %H:%M}), so "
+            f"{'it cuts' if len(outside) == 1 else 'they cut'} no gap filling; check the year"]
+
+
+def _pieces(n: int, breaks) -> list:
+    """Slices of the n records between the positions `breaks` (all of them where None)."""
+    edges = [0, *sorted(int(b) for b in (() if breaks is None else breaks)), n]
+    return [slice(start, stop) for start, stop in zip(edges[:-1], edges[1:], strict=True)
+            if stop > start]
 
 
 def clearness_index(rg, potential, *, min_potential=_CLEARNESS_MIN_POTENTIAL) -> np.ndarray:

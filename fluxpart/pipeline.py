@@ -456,7 +456,7 @@ def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None):
         night_rg_threshold=config.night_rg_threshold,
         clearness=conditions["clearness"] if "clearness" in conditions else None,
         clearness_tolerance=config.gapfill_clearness_tolerance,
-        estimate=config.gapfill_estimate)
+        estimate=config.gapfill_estimate, breaks=gapfill.event_breaks(index, config.events))
 
 
 def _nighttime_settings(config, rg, nearest_year=False) -> dict:
@@ -651,6 +651,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     temperature = _temperature(config, frame)
     warnings = [f"input: {text}" for text in [*(provenance or {}).get("reader", {}).get(
         "warnings", []), *notes]] + [f"budget year: {text}" for text in edges]
+    warnings.extend(gapfill.event_notes(frame.index, config.events))
 
     def step(label: str) -> None:
         _LOG.info("%s: %s", site.name, label)     # the standard logging route (silent by default)
