@@ -776,6 +776,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             # a layout setting that would read this file would misread those read before
             layout = re.search(r"set \[input\] (delimiter|decimal|encoding|rows_before_header|"
                                r"rows_after_header) = ", str(error))
+            if layout is not None and layout.group(1) == "rows_before_header":
+                _refuse_header_lines_differ(paths, encoding, delimiter, time_columns,
+                                            rows_before_header)
             if not parts or layout is None:
                 raise
             raise type(error)(f"{error}; but {parts[0]['source']!r} was read with the present "
@@ -2020,6 +2023,47 @@ def _check_header_line(text: str, delimiter: str, time_columns: tuple,
                 f"[input] time_column = {setting_text(time_columns[0])} is not in the header read from "
                 f"line {rows_before_header + 1} of {str(path)!r} but on line {number + 1}: set "
                 f"[input] rows_before_header = {number}")
+
+
+def _header_line_number(text: str, delimiter: str, time_column: str) -> int | None:
+    """Index of the first of the text's first 50 lines holding `time_column` as a cell."""
+    separator = None if delimiter == _WHITESPACE else delimiter
+    for number, line in enumerate(text.splitlines()[:50]):
+        if time_column in [cell.strip().strip('"') for cell in line.split(separator)]:
+            return number
+    return None
+
+
+def _refuse_header_lines_differ(paths: list, encoding, delimiter: str, time_columns: tuple,
+                                rows_before_header: int) -> None:
+    """Raise where the files' headers stand on different lines (blocks of other lengths).
+
+    A logger that writes a block of metadata above its header (serial numbers, program
+    name, calibration lines) of another length in some files (a line added at a
+    program change) cannot be read with one ``rows_before_header``: the per-file hint
+    ("set rows_before_header = 3") fixed one file and refused the next with another
+    number. Names every length found and the files of each. Files that cannot be
+    decoded or hold no such line are left to the per-file checks.
+    """
+    found: dict[int, list] = {}
+    for path in paths:
+        try:
+            text, _ = _decode(path, encoding)
+        except (InputFileError, UnicodeError, OSError):
+            continue
+        number = _header_line_number(text, delimiter, time_columns[0])
+        if number is not None:
+            found.setdefault(number, []).append(str(path))
+    if len(found) < 2:
+        return
+    counts = "; ".join(f"{number} line(s) above it in {_file_list(found[number])}"
+                       for number in sorted(found))
+    raise MissingColumnError(
+        f"[input] rows_before_header = {rows_before_header}: the input files have blocks of "
+        f"different lengths above their header line (the line holding time_column = "
+        f"{setting_text(time_columns[0])}): {counts}; one rows_before_header reads every "
+        "file, so give every file the same number of lines above its header in copies "
+        "(remove the extra ones)")
 
 
 def _code_hint(name, values, canonical, derived, missing) -> str:

@@ -1189,8 +1189,9 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
             if seconds:
                 raise SpacingError(seconds)
             raise SpacingError(f"the most common spacing between stamps is {typical:g} minutes "
-                               f"({share:.0%} of steps); fluxpart needs 30- or 60-minute "
-                               "records: average the file to 30 or 60 minutes first")
+                               f"({share:.0%} of steps{_spacing_where(steps, typical, describe)}); "
+                               "fluxpart needs 30- or 60-minute records: average "
+                               f"{_spacing_what(steps, typical)} to 30 or 60 minutes first")
         declared = int(typical)
     irregular = np.flatnonzero(np.abs(steps / declared - np.round(steps / declared)) > 1e-9)
     if irregular.size:
@@ -1215,6 +1216,30 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
             f"{declared}-minute interval; {irregular.size} such step(s), spacings found: "
             f"{', '.join(found)} minutes{mismatch}")
     return int(declared)
+
+
+def _spacing_where(steps: np.ndarray, typical: float, describe) -> str:
+    """Where the steps of a refused spacing run: ``", from line .. to line .."``.
+
+    Several files read as one record (30-minute files of one half-year and 10-minute
+    files of the other, a logger reprogrammed) were refused naming no file; the first
+    and last record of the steps of `typical` minutes name them (`describe` gives file
+    and line).
+    """
+    at = np.flatnonzero(steps == typical)
+    # the first step's earlier stamp may close a stretch of another spacing (the last
+    # record of a 30-minute file): name its later stamp, unless it opens the record
+    first = describe(int(at[0]) + (at[0] > 0))
+    last = describe(int(at[-1]) + 1)
+    return f", from {first} to {last}"
+
+
+def _spacing_what(steps: np.ndarray, typical: float) -> str:
+    """``"the file"``, or ``"those records"`` where other steps are 30 or 60 minutes."""
+    others = np.isin(steps, INTERVALS_MINUTES).sum()
+    # a record that is 30- or 60-minute in part (another file, another program) keeps
+    # that part: only the records of the other spacing need averaging
+    return "those records" if others else "the file"
 
 
 def interval_change_warning(stamps: pd.DatetimeIndex, interval_minutes: int,

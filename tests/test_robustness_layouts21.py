@@ -1,0 +1,111 @@
+"""Layouts of the layouts21 round: a year in several files whose record interval or
+title block differs between files.
+
+Outside facts, each named beside its check: meteorological loggers store 10-minute
+means as often as 30-minute ones, and a reprogrammed logger changes its interval from
+one file to the next (common practice); a logger's title block (station, program,
+serial numbers) grows by a line where the program adds a sensor or a note (common
+practice).
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+from test_robustness_layouts18 import _tower
+
+from fluxpart.errors import MissingColumnError, SpacingError
+from fluxpart.io import read_table
+
+MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+
+
+def _read(paths, **kwargs):
+    return read_table(paths, columns=MAPPING, time_column="stamp",
+                      time_format="%Y-%m-%d %H:%M", time_marks="end", **kwargs)
+
+
+def _ten_minute(records):
+    """Each 30-minute record written as three 10-minute ones (stamps 20, 10, 0 min
+    before its end): invented known truth, spacing 10 minutes."""
+    repeated = records.loc[records.index.repeat(3)].reset_index(drop=True)
+    ends = pd.to_datetime(repeated["stamp"]) + pd.to_timedelta(
+        np.tile([-20, -10, 0], len(records)), "min")
+    repeated["stamp"] = ends.dt.strftime("%Y-%m-%d %H:%M")
+    return repeated
+
+
+def test_ten_minute_files_beside_thirty_minute_files_are_named(tmp_path):
+    """30-minute records in one file, 10-minute records in the next (a logger
+    reprogrammed mid-record; common practice): the refusal named no file ("average the
+    file to 30 or 60 minutes", of two files), so the user could not tell which to
+    average. Now it names the first and last 10-minute record's file and line, and
+    asks for those records only."""
+    _, records = _tower(periods=48 * 20)
+    first, second = records.iloc[:480], _ten_minute(records.iloc[480:])
+    first.to_csv(tmp_path / "a.csv", index=False)
+    second.to_csv(tmp_path / "b.csv", index=False)
+    with pytest.raises(SpacingError) as caught:
+        _read([tmp_path / "a.csv", tmp_path / "b.csv"])
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    assert f"from line 2 of {str(tmp_path / 'b.csv')!r}" in message
+    assert f"to line {len(second) + 1} of {str(tmp_path / 'b.csv')!r}" in message
+    assert "average those records" in message
+    assert "most common spacing between stamps is 10 minutes" in message
+
+
+def test_one_ten_minute_file_is_named_with_its_lines(tmp_path):
+    """A single file of 10-minute records: named from its first data line (line 2,
+    under the header) to its last, and the file as the thing to average."""
+    _, records = _tower(periods=48 * 5)
+    _ten_minute(records).to_csv(tmp_path / "a.csv", index=False)
+    with pytest.raises(SpacingError) as caught:
+        _read(tmp_path / "a.csv")
+    message = str(caught.value)
+    assert f"from line 2 of {str(tmp_path / 'a.csv')!r}" in message
+    assert f"to line {3 * len(records) + 1} of" in message
+    assert "average the file to 30 or 60 minutes" in message
+
+
+@pytest.mark.parametrize("setting", [2, 3, 4])
+def test_title_blocks_of_different_lengths_name_every_length(tmp_path, setting):
+    """Month files whose block above the header holds 2, 3 or 4 lines (a line added at
+    a program change; common practice): each rows_before_header was refused with the
+    number that reads one file ("set rows_before_header = 3"), and that number then
+    refused the next file with another. Now every length is named with its files, and
+    the fix that reads them all (one block length)."""
+    _, records = _tower(periods=48 * 12)
+    paths = []
+    for number, lines in enumerate([3, 2, 4, 3]):
+        block = "".join(f"station note {i}: logger 7{i}\n" for i in range(lines))
+        part = records.iloc[number * 144:(number + 1) * 144]
+        path = tmp_path / f"q_{number}.csv"
+        path.write_text(block + part.to_csv(index=False))
+        paths.append(path)
+    with pytest.raises(MissingColumnError) as caught:
+        _read(paths, rows_before_header=setting)
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    assert f"rows_before_header = {setting}:" in message
+    assert f"2 line(s) above it in {str(paths[1])!r};" in message
+    assert f"3 line(s) above it in {str(paths[0])!r} and {str(paths[3])!r};" in message
+    assert f"4 line(s) above it in {str(paths[2])!r};" in message
+    assert "same number of lines above its header" in message
+
+
+def test_title_blocks_of_one_length_read_as_the_plain_files(tmp_path):
+    """The same block length in every file reads as the files without it (known truth:
+    the records as written)."""
+    _, records = _tower(periods=48 * 12)
+    plain, blocked = [], []
+    for number in range(4):
+        part = records.iloc[number * 144:(number + 1) * 144]
+        (tmp_path / f"p_{number}.csv").write_text(part.to_csv(index=False))
+        (tmp_path / f"b_{number}.csv").write_text("title\nprogram v2\n"
+                                                   + part.to_csv(index=False))
+        plain.append(tmp_path / f"p_{number}.csv")
+        blocked.append(tmp_path / f"b_{number}.csv")
+    expected, _ = _read(plain)
+    frame, _ = _read(blocked, rows_before_header=2)
+    pd.testing.assert_frame_equal(frame, expected)
+    assert frame["nee"].to_numpy() == pytest.approx(records["fc"].to_numpy())
