@@ -840,7 +840,20 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         # that file alone is judged as a one-file record would be
         refusals |= _file_mixups(converted, units, mapping, interval_minutes, potential,
                                  missing, starts, combined["sources"], refusals)
+        # and where the record splits into two parts told apart in two units, refused
+        for warning in suspicions:
+            name = _warned_variable(warning, mapping)
+            if name is None or name in refusals:
+                continue
+            split = _unit_changed_within(name, warning, values[name], converted, units,
+                                         mapping, interval_minutes, potential, missing,
+                                         starts, combined["sources"], strict=False)
+            if split:
+                refusals[name] = split
     for name, message in refusals.items():
+        message = _unit_changed_within(name, message, values[name], converted, units,
+                                       mapping, interval_minutes, potential, missing, starts,
+                                       combined["sources"]) or message
         accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
     for name in converted:
         message = implausible_message(name, converted[name], values[name], units.get(name),
@@ -1350,6 +1363,137 @@ def _file_mixups(converted: dict, units: dict, mapping: dict, interval_minutes: 
                            "[input.units] setting cannot read; convert that file's column in a "
                            f"copy of it (or list {name} in [input] accept_units)")
     return found
+
+
+_SUGGESTED_UNIT = re.compile(r'set \[input\.units\] (\w+) = "([^"]+)"')
+
+
+def _other_unit(name: str, message: str) -> str | None:
+    """The unit a refusal's fix (``set [input.units] vpd = "hPa"``) or a month warning
+    ("look like a flux 22.7 times too small (mg CO2 m-2 s-1)") names for `name`."""
+    suggested = _SUGGESTED_UNIT.search(message)
+    if suggested is not None:
+        return suggested.group(2) if suggested.group(1) == name else None
+    named = [unit for unit in units_for(name) if f"({unit})" in message]
+    return max(named, key=len) if named else None
+
+
+def _warned_variable(warning: str, mapping: dict) -> str | None:
+    """The variable of a month-by-month warning (``column 'x' (nee): in 7 month(s)``)."""
+    if _CHANGED_WITHIN not in warning:
+        return None
+    found = re.match(r"column '[^']*' \((\w+)\): in \d+ month", warning)
+    return found.group(1) if found and found.group(1) in mapping else None
+
+
+def _unit_changed_within(name: str, message: str, values, converted: dict, units: dict,
+                         mapping: dict, interval_minutes: int, potential, missing,
+                         starts: pd.DatetimeIndex, sources: np.ndarray,
+                         strict: bool = True) -> str | None:
+    """A whole-record refusal's message where the unit changed within the record.
+
+    A logger program or export that changed a column's unit part way through (VPD in
+    kPa until June, hPa from July) is refused on the whole record with the unit of the
+    later records as the fix ("set [input.units] vpd = \"hPa\""), which then refuses the
+    earlier ones. Where the record splits, at a change of input file (or, for one file,
+    at a month start), into two parts of :data:`_FILE_CHECK_DAYS` or more each that the
+    checks tell apart affirmatively (each part passes in one of the two units and is
+    refused in the other), the refusal names the split and the fix that reads both.
+
+    Parameters
+    ----------
+    name : str
+        The refused variable.
+    message : str
+        Its whole-record refusal, ending in the ``set [input.units]`` fix.
+    values : numpy.ndarray
+        Its values as written in the file (before unit conversion).
+    converted, units, mapping, interval_minutes, potential, missing, starts
+        As for :func:`fluxpart.unit_checks.mixup_messages` over the whole record.
+    sources : numpy.ndarray
+        Input file of each record.
+    strict : bool
+        Require each part to be refused in the other unit too (True: the whole record
+        is refused and only the message changes). False for a month-by-month warning
+        (a whole record that passes): one part passing as declared and the other,
+        :data:`_FILE_CHECK_DAYS` or more, refused alone as declared and passing in the
+        unit the months look like, is refused, as :func:`_file_mixups` refuses a file
+        refused alone.
+
+    Returns
+    -------
+    str or None
+        The message naming the split, or None where no split is told apart (a record
+        in one wrong unit throughout keeps its own message).
+
+    References
+    ----------
+    The checks are those of :func:`fluxpart.unit_checks.mixup_messages`; requiring
+    both parts to be told apart in both units keeps a part whose records cannot tell
+    (a winter half with no bright, warm record) from being taken for a unit change.
+    """
+    other = _other_unit(name, message)
+    if other is None:
+        return None
+    declared = units.get(name)
+    order = list(dict.fromkeys(sources))
+    by_file = 1 < len(order) <= 60
+    if by_file:
+        cuts = np.flatnonzero(sources[1:] != sources[:-1]) + 1
+    else:
+        months = starts.year * 12 + starts.month
+        cuts = np.flatnonzero(np.diff(np.asarray(months)) != 0) + 1
+    span = pd.Timedelta(days=_FILE_CHECK_DAYS)
+    cuts = [int(c) for c in cuts
+            if starts[c - 1] - starts[0] >= span and starts[-1] - starts[c] >= span]
+    if not cuts or len(cuts) > 60:
+        return None
+
+    def refused(rows: slice, unit) -> bool:
+        part = {key: array[rows] for key, array in converted.items()}
+        part[name] = to_canonical(values[rows], name, unit, interval_minutes=interval_minutes)
+        refusals, _ = mixup_messages(part, {**units, name: unit} if unit else
+                                     {k: v for k, v in units.items() if k != name},
+                                     mapping, interval_minutes,
+                                     None if potential is None else np.asarray(potential)[rows],
+                                     missing, starts[rows])
+        return name in refusals
+
+    found = []
+    for cut in cuts:
+        before, after = slice(0, cut), slice(cut, None)
+        # earlier records right as declared, later ones in the suggested unit, each
+        # told apart affirmatively (or the reverse order)
+        for first, second in ((declared, other), (other, declared)):
+            if (not refused(before, first) and not refused(after, second)
+                    and (refused(after, first) if first == declared else
+                         refused(before, second))
+                    and (not strict or (refused(before, second) and refused(after, first)))):
+                found.append((cut, first, second))
+                break
+    if not found:
+        return None
+    cut, first, second = found[0]
+    last = found[-1][0]
+    canonical = VARIABLES[name].unit if name in VARIABLES else "its canonical unit"
+    shown = [repr(unit if unit else canonical) for unit in (first, second)]
+    where = (f"{starts[cut]:%Y-%m-%d %H:%M} (input file {sources[cut]!r})" if cut == last else
+             f"{starts[cut]:%Y-%m-%d %H:%M} (input file {sources[cut]!r}) and "
+             f"{starts[last]:%Y-%m-%d %H:%M} (input file {sources[last]!r})")
+    at = "at" if cut == last else "between"
+    if not by_file:
+        # month starts are tried: the change may lie within the month before
+        at = "at about" if cut == last else "between about"
+        where += " (month starts tried: the change may lie up to a month from it)"
+    told = ("each part refused in the other unit" if strict else
+             "one part refused alone as declared, as a one-file record of its length "
+             "would be")
+    return (f"{message.split('; ')[0]}; the records read right in two units, split "
+            f"{at} {where}: those before in {shown[0]}, those after in {shown[1]} ({told}): "
+            f"a unit that changed within the record (a logger "
+            f"program or export changed), which one [input.units] setting cannot read; "
+            f"convert column {mapping[name]!r} of one part in a copy of its file(s) (or list "
+            f"{name} in [input] accept_units)")
 
 
 def _refuse_or_warn(name: str, message: str, accept_units: tuple, warnings: list,

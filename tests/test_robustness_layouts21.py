@@ -13,7 +13,7 @@ import pandas as pd
 import pytest
 from test_robustness_layouts18 import _tower
 
-from fluxpart.errors import MissingColumnError, SpacingError
+from fluxpart.errors import ImplausibleValueError, MissingColumnError, SpacingError
 from fluxpart.io import read_table
 
 MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
@@ -109,3 +109,73 @@ def test_title_blocks_of_one_length_read_as_the_plain_files(tmp_path):
     frame, _ = _read(blocked, rows_before_header=2)
     pd.testing.assert_frame_equal(frame, expected)
     assert frame["nee"].to_numpy() == pytest.approx(records["fc"].to_numpy())
+
+
+def _half_year(periods=48 * 180):
+    """Invented half-hourly records of 180 days (known truth: round layouts18's)."""
+    _, records = _tower(periods=periods)
+    return records
+
+
+def test_vpd_unit_changed_between_files_names_the_split(tmp_path):
+    """VPD written in kPa for 90 days, then in hPa (a logger program changed; 1 kPa =
+    10 hPa, SI): the whole record was refused with `vpd = "hPa"` as the fix, which
+    refuses the first file. Both parts exceed or fall far below the saturation
+    vapour pressure in the other unit (VPD lies between 0 and saturation, a fact of
+    the trade), so the refusal now names the file where the unit changed and no
+    single-unit fix."""
+    records = _half_year()
+    half = 48 * 90
+    records.loc[:half - 1, "vpd"] = (records.loc[:half - 1, "vpd"] / 10).round(3)
+    records.iloc[:half].to_csv(tmp_path / "a.csv", index=False)
+    records.iloc[half:].to_csv(tmp_path / "b.csv", index=False)
+    with pytest.raises(ImplausibleValueError) as caught:
+        _read([tmp_path / "a.csv", tmp_path / "b.csv"], units={"vpd": "kPa"})
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    assert f"split at {records['stamp'].iloc[half][:10]}" in message
+    assert repr(str(tmp_path / "b.csv")) in message
+    assert "those before in 'kPa', those after in 'hPa'" in message
+    assert 'set [input.units] vpd = "hPa"' not in message
+
+
+def test_vpd_in_one_wrong_unit_throughout_keeps_its_fix(tmp_path):
+    """VPD in hPa all through, declared kPa: no split reads it, so the one-unit fix
+    stays (the same message as before)."""
+    records = _half_year()
+    records.to_csv(tmp_path / "a.csv", index=False)
+    with pytest.raises(ImplausibleValueError) as caught:
+        _read(tmp_path / "a.csv", units={"vpd": "kPa"})
+    assert 'set [input.units] vpd = "hPa"' in str(caught.value)
+    assert "two units" not in str(caught.value)
+
+
+def test_nee_in_mg_co2_for_the_last_months_of_one_file_is_refused(tmp_path):
+    """NEE in µmol m-2 s-1 for 90 days, then in mg CO2 m-2 s-1 in the same file (1
+    µmol CO2 = 0.044 mg, molar mass of CO2 44.01 g mol-1 (m)): the whole record
+    passes, the months were only warned about, and the run went on with three months
+    22.7 times too small. The later part alone, three months, is refused as a
+    one-file record of its length would be: now refused, naming the month where the
+    unit changed."""
+    records = _half_year()
+    half = 48 * 90
+    records.loc[half:, "fc"] = (records.loc[half:, "fc"] * 0.044).round(4)
+    records.to_csv(tmp_path / "a.csv", index=False)
+    with pytest.raises(ImplausibleValueError) as caught:
+        _read(tmp_path / "a.csv")
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    change = pd.Timestamp(records["stamp"].iloc[half])
+    found = pd.Timestamp(message.split("split at about ")[1][:16])
+    assert abs(found - change) <= pd.Timedelta(days=31)
+    assert "those before in 'µmol m-2 s-1', those after in 'mg CO2 m-2 s-1'" in message
+
+
+def test_nee_in_one_unit_throughout_reads(tmp_path):
+    """The same records in µmol throughout read as written (known truth): the split
+    search refuses nothing that was right."""
+    records = _half_year()
+    records.to_csv(tmp_path / "a.csv", index=False)
+    frame, report = _read(tmp_path / "a.csv")
+    assert frame["nee"].to_numpy() == pytest.approx(records["fc"].to_numpy())
+    assert not any("two units" in warning for warning in report.warnings)
