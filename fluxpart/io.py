@@ -779,6 +779,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             if layout is not None and layout.group(1) == "rows_before_header":
                 _refuse_header_lines_differ(paths, encoding, delimiter, time_columns,
                                             rows_before_header)
+            if layout is None and isinstance(error, MissingColumnError):
+                _refuse_time_column_spelled_otherwise(error, path_, paths, parts, encoding,
+                                                      delimiter, time_columns)
             if not parts or layout is None:
                 raise
             raise type(error)(f"{error}; but {parts[0]['source']!r} was read with the present "
@@ -2176,6 +2179,41 @@ def _header_line_number(text: str, delimiter: str, time_column: str) -> int | No
         if time_column in [cell.strip().strip('"') for cell in line.split(separator)]:
             return number
     return None
+
+
+def _refuse_time_column_spelled_otherwise(error: MissingColumnError, path: Path,
+                                          paths: list, parts: list, encoding,
+                                          delimiter: str, time_columns: tuple) -> None:
+    """Raise where another input file holds the time column this one lacks as written.
+
+    Month files whose header a logger program or export wrote in capitals (or another
+    spelling) from one month on were refused with the other file's spelling offered
+    ("did you mean 'STAMP_END'?"), which then refuses the files read before; now named
+    as headers that differ between files. Only a time-column refusal of one file among
+    several is considered; others keep their message.
+    """
+    text = str(error)
+    if len(paths) < 2 or not text.startswith("[input] time_column = ") \
+            or "no such column in" not in text:
+        return
+    having = [part["source"] for part in parts]
+    if not having:
+        for other in paths:
+            if other == path:
+                continue
+            try:
+                decoded, _ = _decode(other, encoding)
+            except (InputFileError, UnicodeError, OSError):
+                continue
+            if _header_line_number(decoded, delimiter, time_columns[0]) is not None:
+                having.append(str(other))
+                break
+    if not having:
+        return
+    raise MissingColumnError(
+        f"{text}; but {having[0]!r} has the column as written: the input files write their "
+        "header differently (other names or capitals from one file on?), and one [input] "
+        "time_column reads every file, so give this file the others' header line in a copy")
 
 
 def _refuse_header_lines_differ(paths: list, encoding, delimiter: str, time_columns: tuple,

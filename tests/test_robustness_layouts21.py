@@ -179,3 +179,30 @@ def test_nee_in_one_unit_throughout_reads(tmp_path):
     frame, report = _read(tmp_path / "a.csv")
     assert frame["nee"].to_numpy() == pytest.approx(records["fc"].to_numpy())
     assert not any("two units" in warning for warning in report.warnings)
+
+
+@pytest.mark.parametrize("capital_first", [False, True])
+def test_a_header_in_capitals_from_one_file_on_is_named(tmp_path, capital_first):
+    """Month files whose header is written in capitals from one file on (an export
+    changed; SQL names are case-insensitive, ISO/IEC 9075 (m), so a database export may
+    write them so): the refusal offered the capital spelling ("did you mean
+    'STAMP'?"), which then refuses the files written in small letters. Now it names a
+    file holding the column as written and the fix (one header for every file)."""
+    _, records = _tower(periods=48 * 12)
+    paths = []
+    for number in range(4):
+        text = records.iloc[number * 144:(number + 1) * 144].to_csv(index=False)
+        header, rest = text.split("\n", 1)
+        if (number < 2) == capital_first:
+            header = header.upper()
+        path = tmp_path / f"q_{number}.csv"
+        path.write_text(header + "\n" + rest)
+        paths.append(path)
+    with pytest.raises(MissingColumnError) as caught:
+        _read(paths)
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    lacking, having = (paths[0], paths[2]) if capital_first else (paths[2], paths[0])
+    assert f"no such column in {str(lacking)!r}" in message
+    assert f"but {str(having)!r} has the column as written" in message
+    assert "give this file the others' header line" in message
