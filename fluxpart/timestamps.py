@@ -1214,8 +1214,38 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
             f"stamps are {steps[irregular[0]]:g} minutes apart at {describe(row)} "
             f"({stamps[row - 1]} -> {stamps[row]}), not a whole multiple of the "
             f"{declared}-minute interval; {irregular.size} such step(s), spacings found: "
-            f"{', '.join(found)} minutes{mismatch}")
+            f"{', '.join(found)} minutes{mismatch}"
+            f"{_grid_moved(stamps, row, declared, describe)}")
     return int(declared)
+
+
+def _grid_moved(stamps: pd.DatetimeIndex, row: int, interval: int, describe) -> str:
+    """``"; the stamps from ... on fall N minute(s) ..."`` where the clock grid moves at
+    stamp `row` and stays moved for a day or more, else ``""``.
+
+    A logger clock set by hand or drifting by whole minutes between two
+    synchronisations writes its stamps at minute 1 and 31 (or 29 and 59) from one
+    record on: a single step of 31 or 29 minutes, then regular records on another
+    grid. The refusal named only the odd step; the moved grid and its extent tell the
+    cause (our choice of length: a day of records, as for the interval change).
+    """
+    minutes = np.asarray((stamps - stamps[0]) / pd.Timedelta(minutes=1), dtype=float)
+    phase = np.mod(minutes, interval)
+    before, after = phase[row - 1], phase[row]
+    if np.isclose(before, after):
+        return ""
+    same = np.isclose(phase[row:], after)
+    run = int(np.argmin(same)) if not same.all() else same.size
+    if run < 24 * 60 // interval:
+        return ""
+    moved = (after - before) % interval
+    shift = moved if moved <= interval / 2 else moved - interval
+    end = (f"to {describe(row + run - 1)}" if row + run < stamps.size else
+           "to the last record")
+    return (f"; the stamps from {describe(row)} {end} ({run} records) lie "
+            f"{abs(shift):g} minute(s) {'later' if shift > 0 else 'earlier'} on the clock "
+            "grid than those before (a logger clock set or drifting by whole minutes?): "
+            "align them in a copy of the file")
 
 
 def _spacing_where(steps: np.ndarray, typical: float, describe) -> str:

@@ -206,3 +206,40 @@ def test_a_header_in_capitals_from_one_file_on_is_named(tmp_path, capital_first)
     assert f"no such column in {str(lacking)!r}" in message
     assert f"but {str(having)!r} has the column as written" in message
     assert "give this file the others' header line" in message
+
+
+@pytest.mark.parametrize("minutes", [1, -2])
+def test_stamps_on_a_moved_clock_grid_name_the_stretch(tmp_path, minutes):
+    """A logger clock set by hand, or drifting by whole minutes between two
+    synchronisations (common practice: loggers are synchronised at each download),
+    writes its stamps at minute 1 and 31 from one record on until the next download.
+    The refusal named the one odd step (31 minutes) alone; now it names the stretch of
+    records on the moved grid, its length and the shift."""
+    _, records = _tower(periods=48 * 10)
+    ends = pd.to_datetime(records["stamp"])
+    moved = (ends >= ends.iloc[96]) & (ends < ends.iloc[384])
+    ends[moved] += pd.Timedelta(minutes=minutes)
+    records["stamp"] = ends.dt.strftime("%Y-%m-%d %H:%M")
+    records.to_csv(tmp_path / "a.csv", index=False)
+    with pytest.raises(SpacingError) as caught:
+        _read(tmp_path / "a.csv")
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    later = "later" if minutes > 0 else "earlier"
+    assert (f"the stamps from line 98 of {str(tmp_path / 'a.csv')!r} to line 385 of "
+            f"{str(tmp_path / 'a.csv')!r} (288 records) lie {abs(minutes)} minute(s) "
+            f"{later}") in message
+
+
+def test_a_few_records_off_the_grid_are_no_moved_clock(tmp_path):
+    """Three records at minute 7 (a stray stamp, not a clock moved for a day): the
+    refusal stays the odd step alone."""
+    _, records = _tower(periods=48 * 10)
+    ends = pd.to_datetime(records["stamp"])
+    ends.iloc[100:103] += pd.Timedelta(minutes=7)
+    records["stamp"] = ends.dt.strftime("%Y-%m-%d %H:%M")
+    records.to_csv(tmp_path / "a.csv", index=False)
+    with pytest.raises(SpacingError) as caught:
+        _read(tmp_path / "a.csv")
+    assert "37 minutes apart" in str(caught.value)
+    assert "clock grid than those before" not in str(caught.value)
