@@ -2755,6 +2755,69 @@ def _complete_overlap(stamps, lines, sources, values):
             int(first_of.sum()), where)
 
 
+#: Shifts of one file's stamps tried on overlapping files that disagree [intervals]
+#: (1 to 4 records: a start/end or middle convention, a clock set off) and [minutes]
+#: (an hour or two: UTC or summer time against local standard time)
+_OVERLAP_SHIFT_RECORDS = (1, 2, 3, 4)
+_OVERLAP_SHIFT_MINUTES = (60.0, 120.0)
+#: Share of the shifted overlap's stamps whose rows must be equal for a shift to be
+#: named (our choice: a few rows may differ where a download rewrote its last record)
+_OVERLAP_SHIFT_SHARE = 0.95
+
+
+def _shifted_overlap(parts: list, source_a: str, source_b: str) -> str:
+    """The fix where two overlapping files agree once one file's stamps are shifted.
+
+    Two downloads of one logger whose overlap disagrees at every stamp, but agrees row
+    by row with the second file's stamps moved by whole records or an hour: the stamps
+    changed their convention (interval start against end) or clock between the files.
+    The refusal blamed the overlap ("remove one copy") or two loggers' files sharing
+    columns; it now names the shift.
+
+    Parameters
+    ----------
+    parts : list of dict
+        The files read (``"source"``, ``"stamps"``, ``"values"``).
+    source_a, source_b : str
+        The two files of the first stamp that disagrees.
+
+    Returns
+    -------
+    str
+        The fix naming the shift, or "" where no shift makes the overlap agree.
+    """
+    by_source = {part["source"]: part for part in parts}
+    if source_a not in by_source or source_b not in by_source:
+        return ""
+
+    def table(part):
+        frame = pd.DataFrame(part["values"], index=pd.DatetimeIndex(part["stamps"]))
+        return frame[~frame.index.duplicated(keep="first")]
+
+    first, second = table(by_source[source_a]), table(by_source[source_b])
+    overlap = first.index.intersection(second.index)
+    step = _median_step(first.index)
+    if step is None or overlap.size < 48:
+        return ""
+    shifts = sorted({k * step for k in _OVERLAP_SHIFT_RECORDS} | set(_OVERLAP_SHIFT_MINUTES))
+    for minutes in [sign * m for m in shifts for sign in (1, -1)]:
+        moved = second.copy()
+        moved.index = second.index + pd.Timedelta(minutes=minutes)
+        common = first.index.intersection(moved.index)
+        if common.size < 48:
+            continue
+        left, right = first.loc[common].to_numpy(), moved.loc[common].to_numpy()
+        equal = ((left == right) | (np.isnan(left) & np.isnan(right))).all(axis=1)
+        if equal.mean() >= _OVERLAP_SHIFT_SHARE:
+            direction = "later" if minutes > 0 else "earlier"
+            return (f"the overlap agrees row by row once the stamps of {source_b!r} are read "
+                    f"{abs(minutes):g} minutes {direction}: the two files stamp the same "
+                    "records differently (the start against the end of the interval, or a "
+                    "clock set another way between the downloads?); correct one file's "
+                    "stamps in a copy")
+    return ""
+
+
 def _combine(parts: list) -> dict:
     """Join the files' rows in time order; merge identical rows, refuse conflicting ones."""
     names = list(parts[0]["values"])
@@ -2802,6 +2865,8 @@ def _combine(parts: list) -> dict:
                        "look like two loggers' files joined by stamp: keep the column(s) of "
                        f"{', '.join(differing)} in one of them only (in a copy), or rename "
                        "them in the other")
+            if sources[a] != sources[b]:
+                fix = _shifted_overlap(parts, sources[a], sources[b]) or fix
             raise DuplicateTimestampError(
                 f"overlapping files disagree: stamp {pd.Timestamp(stamps[a])} is on line "
                 f"{int(lines[a])} of {sources[a]!r} and on line {int(lines[b])} of "

@@ -13,7 +13,12 @@ import pandas as pd
 import pytest
 from test_robustness_layouts18 import _tower
 
-from fluxpart.errors import ImplausibleValueError, MissingColumnError, SpacingError
+from fluxpart.errors import (
+    DuplicateTimestampError,
+    ImplausibleValueError,
+    MissingColumnError,
+    SpacingError,
+)
 from fluxpart.io import read_table
 
 MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
@@ -243,3 +248,40 @@ def test_a_few_records_off_the_grid_are_no_moved_clock(tmp_path):
         _read(tmp_path / "a.csv")
     assert "37 minutes apart" in str(caught.value)
     assert "clock grid than those before" not in str(caught.value)
+
+
+@pytest.mark.parametrize("minutes", [30, 60])
+def test_overlapping_downloads_on_shifted_stamps_name_the_shift(tmp_path, minutes):
+    """Two downloads of one logger overlapping by five days, the second stamped at the
+    start of each interval where the first stamps its end (a program change; the two
+    conventions are common practice), or an hour apart (one in UTC+1 standard time,
+    the other in summer time, UTC+2): every overlapping stamp disagrees, and the
+    refusal blamed two loggers' files sharing columns or the overlap. The overlap agrees
+    row by row with the second file's stamps moved (invented known truth); that shift
+    is named now."""
+    _, records = _tower(periods=48 * 20)
+    first, second = records.iloc[:48 * 12].copy(), records.iloc[48 * 7:].copy()
+    moved = pd.to_datetime(second["stamp"]) - pd.Timedelta(minutes=minutes)
+    second["stamp"] = moved.dt.strftime("%Y-%m-%d %H:%M")
+    first.to_csv(tmp_path / "dl1.csv", index=False)
+    second.to_csv(tmp_path / "dl2.csv", index=False)
+    with pytest.raises(DuplicateTimestampError) as caught:
+        _read([tmp_path / "dl1.csv", tmp_path / "dl2.csv"])
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    assert (f"once the stamps of {str(tmp_path / 'dl2.csv')!r} are read {minutes} minutes "
+            "later") in message
+
+
+def test_overlapping_downloads_that_truly_differ_keep_their_fix(tmp_path):
+    """An overlap whose air temperature was rewritten 0.1 K warmer agrees under no
+    shift: the fix stays to remove one copy of the overlap."""
+    _, records = _tower(periods=48 * 20)
+    first, second = records.iloc[:48 * 12].copy(), records.iloc[48 * 7:].copy()
+    second["ta"] = (second["ta"] + 0.1).round(2)
+    first.to_csv(tmp_path / "dl1.csv", index=False)
+    second.to_csv(tmp_path / "dl2.csv", index=False)
+    with pytest.raises(DuplicateTimestampError) as caught:
+        _read([tmp_path / "dl1.csv", tmp_path / "dl2.csv"])
+    assert "remove one copy of the overlap" in str(caught.value)
+    assert "are read" not in str(caught.value)
