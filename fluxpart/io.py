@@ -2784,7 +2784,14 @@ def _shifted_overlap(parts: list, source_a: str, source_b: str) -> str:
     Returns
     -------
     str
-        The fix naming the shift, or "" where no shift makes the overlap agree.
+        The fix naming the shift [minutes], or "" where no shift makes the overlap
+        agree.
+
+    References
+    ----------
+    Loggers stamp a record at the start, middle or end of its averaging interval, and
+    a clock kept on summer time or UTC runs an hour or two from local standard time
+    (common practice); the shifts tried are those.
     """
     by_source = {part["source"]: part for part in parts}
     if source_a not in by_source or source_b not in by_source:

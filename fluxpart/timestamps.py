@@ -1220,8 +1220,9 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
 
 
 def _grid_moved(stamps: pd.DatetimeIndex, row: int, interval: int, describe) -> str:
-    """``"; the stamps from ... on fall N minute(s) ..."`` where the clock grid moves at
-    stamp `row` and stays moved for a day or more, else ``""``.
+    """``"; the stamps from ... to ... lie N minute(s) later ..."`` where the clock grid
+    moves at stamp `row` and stays moved for a day or more, else ``""`` (shift in
+    [minutes]).
 
     A logger clock set by hand or drifting by whole minutes between two
     synchronisations writes its stamps at minute 1 and 31 (or 29 and 59) from one
