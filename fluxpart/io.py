@@ -776,6 +776,12 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             # a layout setting that would read this file would misread those read before
             layout = re.search(r"set \[input\] (delimiter|decimal|encoding|rows_before_header|"
                                r"rows_after_header) = ", str(error))
+            if layout is not None and layout.group(1) == "rows_before_header":
+                _refuse_header_lines_differ(paths, encoding, delimiter, time_columns,
+                                            rows_before_header)
+            if layout is None and isinstance(error, MissingColumnError):
+                _refuse_time_column_spelled_otherwise(error, path_, paths, parts, encoding,
+                                                      delimiter, time_columns)
             if not parts or layout is None:
                 raise
             raise type(error)(f"{error}; but {parts[0]['source']!r} was read with the present "
@@ -837,7 +843,20 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         # that file alone is judged as a one-file record would be
         refusals |= _file_mixups(converted, units, mapping, interval_minutes, potential,
                                  missing, starts, combined["sources"], refusals)
+        # and where the record splits into two parts told apart in two units, refused
+        for warning in suspicions:
+            name = _warned_variable(warning, mapping)
+            if name is None or name in refusals:
+                continue
+            split = _unit_changed_within(name, warning, values[name], converted, units,
+                                         mapping, interval_minutes, potential, missing,
+                                         starts, combined["sources"], strict=False)
+            if split:
+                refusals[name] = split
     for name, message in refusals.items():
+        message = _unit_changed_within(name, message, values[name], converted, units,
+                                       mapping, interval_minutes, potential, missing, starts,
+                                       combined["sources"]) or message
         accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
     for name in converted:
         message = implausible_message(name, converted[name], values[name], units.get(name),
@@ -1352,6 +1371,137 @@ def _file_mixups(converted: dict, units: dict, mapping: dict, interval_minutes: 
                            "[input.units] setting cannot read; convert that file's column in a "
                            f"copy of it (or list {name} in [input] accept_units)")
     return found
+
+
+_SUGGESTED_UNIT = re.compile(r'set \[input\.units\] (\w+) = "([^"]+)"')
+
+
+def _other_unit(name: str, message: str) -> str | None:
+    """The unit a refusal's fix (``set [input.units] vpd = "hPa"``) or a month warning
+    ("look like a flux 22.7 times too small (mg CO2 m-2 s-1)") names for `name`."""
+    suggested = _SUGGESTED_UNIT.search(message)
+    if suggested is not None:
+        return suggested.group(2) if suggested.group(1) == name else None
+    named = [unit for unit in units_for(name) if f"({unit})" in message]
+    return max(named, key=len) if named else None
+
+
+def _warned_variable(warning: str, mapping: dict) -> str | None:
+    """The variable of a month-by-month warning (``column 'x' (nee): in 7 month(s)``)."""
+    if _CHANGED_WITHIN not in warning:
+        return None
+    found = re.match(r"column '[^']*' \((\w+)\): in \d+ month", warning)
+    return found.group(1) if found and found.group(1) in mapping else None
+
+
+def _unit_changed_within(name: str, message: str, values, converted: dict, units: dict,
+                         mapping: dict, interval_minutes: int, potential, missing,
+                         starts: pd.DatetimeIndex, sources: np.ndarray,
+                         strict: bool = True) -> str | None:
+    """A whole-record refusal's message where the unit changed within the record.
+
+    A logger program or export that changed a column's unit part way through (VPD in
+    kPa until June, hPa from July) is refused on the whole record with the unit of the
+    later records as the fix ("set [input.units] vpd = \"hPa\""), which then refuses the
+    earlier ones. Where the record splits, at a change of input file (or, for one file,
+    at a month start), into two parts of :data:`_FILE_CHECK_DAYS` or more each that the
+    checks tell apart affirmatively (each part passes in one of the two units and is
+    refused in the other), the refusal names the split and the fix that reads both.
+
+    Parameters
+    ----------
+    name : str
+        The refused variable.
+    message : str
+        Its whole-record refusal, ending in the ``set [input.units]`` fix.
+    values : numpy.ndarray
+        Its values as written in the file (before unit conversion).
+    converted, units, mapping, interval_minutes, potential, missing, starts
+        As for :func:`fluxpart.unit_checks.mixup_messages` over the whole record.
+    sources : numpy.ndarray
+        Input file of each record.
+    strict : bool
+        Require each part to be refused in the other unit too (True: the whole record
+        is refused and only the message changes). False for a month-by-month warning
+        (a whole record that passes): one part passing as declared and the other,
+        :data:`_FILE_CHECK_DAYS` or more, refused alone as declared and passing in the
+        unit the months look like, is refused, as :func:`_file_mixups` refuses a file
+        refused alone.
+
+    Returns
+    -------
+    str or None
+        The message naming the split, or None where no split is told apart (a record
+        in one wrong unit throughout keeps its own message).
+
+    References
+    ----------
+    The checks are those of :func:`fluxpart.unit_checks.mixup_messages`; requiring
+    both parts to be told apart in both units keeps a part whose records cannot tell
+    (a winter half with no bright, warm record) from being taken for a unit change.
+    """
+    other = _other_unit(name, message)
+    if other is None:
+        return None
+    declared = units.get(name)
+    order = list(dict.fromkeys(sources))
+    by_file = 1 < len(order) <= 60
+    if by_file:
+        cuts = np.flatnonzero(sources[1:] != sources[:-1]) + 1
+    else:
+        months = starts.year * 12 + starts.month
+        cuts = np.flatnonzero(np.diff(np.asarray(months)) != 0) + 1
+    span = pd.Timedelta(days=_FILE_CHECK_DAYS)
+    cuts = [int(c) for c in cuts
+            if starts[c - 1] - starts[0] >= span and starts[-1] - starts[c] >= span]
+    if not cuts or len(cuts) > 60:
+        return None
+
+    def refused(rows: slice, unit) -> bool:
+        part = {key: array[rows] for key, array in converted.items()}
+        part[name] = to_canonical(values[rows], name, unit, interval_minutes=interval_minutes)
+        refusals, _ = mixup_messages(part, {**units, name: unit} if unit else
+                                     {k: v for k, v in units.items() if k != name},
+                                     mapping, interval_minutes,
+                                     None if potential is None else np.asarray(potential)[rows],
+                                     missing, starts[rows])
+        return name in refusals
+
+    found = []
+    for cut in cuts:
+        before, after = slice(0, cut), slice(cut, None)
+        # earlier records right as declared, later ones in the suggested unit, each
+        # told apart affirmatively (or the reverse order)
+        for first, second in ((declared, other), (other, declared)):
+            if (not refused(before, first) and not refused(after, second)
+                    and (refused(after, first) if first == declared else
+                         refused(before, second))
+                    and (not strict or (refused(before, second) and refused(after, first)))):
+                found.append((cut, first, second))
+                break
+    if not found:
+        return None
+    cut, first, second = found[0]
+    last = found[-1][0]
+    canonical = VARIABLES[name].unit if name in VARIABLES else "its canonical unit"
+    shown = [repr(unit if unit else canonical) for unit in (first, second)]
+    where = (f"{starts[cut]:%Y-%m-%d %H:%M} (input file {sources[cut]!r})" if cut == last else
+             f"{starts[cut]:%Y-%m-%d %H:%M} (input file {sources[cut]!r}) and "
+             f"{starts[last]:%Y-%m-%d %H:%M} (input file {sources[last]!r})")
+    at = "at" if cut == last else "between"
+    if not by_file:
+        # month starts are tried: the change may lie within the month before
+        at = "at about" if cut == last else "between about"
+        where += " (month starts tried: the change may lie up to a month from it)"
+    told = ("each part refused in the other unit" if strict else
+             "one part refused alone as declared, as a one-file record of its length "
+             "would be")
+    return (f"{message.split('; ')[0]}; the records read right in two units, split "
+            f"{at} {where}: those before in {shown[0]}, those after in {shown[1]} ({told}): "
+            f"a unit that changed within the record (a logger "
+            f"program or export changed), which one [input.units] setting cannot read; "
+            f"convert column {mapping[name]!r} of one part in a copy of its file(s) (or list "
+            f"{name} in [input] accept_units)")
 
 
 def _refuse_or_warn(name: str, message: str, accept_units: tuple, warnings: list,
@@ -2027,6 +2177,82 @@ def _check_header_line(text: str, delimiter: str, time_columns: tuple,
                 f"[input] rows_before_header = {number}")
 
 
+def _header_line_number(text: str, delimiter: str, time_column: str) -> int | None:
+    """Index of the first of the text's first 50 lines holding `time_column` as a cell."""
+    separator = None if delimiter == _WHITESPACE else delimiter
+    for number, line in enumerate(text.splitlines()[:50]):
+        if time_column in [cell.strip().strip('"') for cell in line.split(separator)]:
+            return number
+    return None
+
+
+def _refuse_time_column_spelled_otherwise(error: MissingColumnError, path: Path,
+                                          paths: list, parts: list, encoding,
+                                          delimiter: str, time_columns: tuple) -> None:
+    """Raise where another input file holds the time column this one lacks as written.
+
+    Month files whose header a logger program or export wrote in capitals (or another
+    spelling) from one month on were refused with the other file's spelling offered
+    ("did you mean 'STAMP_END'?"), which then refuses the files read before; now named
+    as headers that differ between files. Only a time-column refusal of one file among
+    several is considered; others keep their message.
+    """
+    text = str(error)
+    if len(paths) < 2 or not text.startswith("[input] time_column = ") \
+            or "no such column in" not in text:
+        return
+    having = [part["source"] for part in parts]
+    if not having:
+        for other in paths:
+            if other == path:
+                continue
+            try:
+                decoded, _ = _decode(other, encoding)
+            except (InputFileError, UnicodeError, OSError):
+                continue
+            if _header_line_number(decoded, delimiter, time_columns[0]) is not None:
+                having.append(str(other))
+                break
+    if not having:
+        return
+    raise MissingColumnError(
+        f"{text}; but {having[0]!r} has the column as written: the input files write their "
+        "header differently (other names or capitals from one file on?), and one [input] "
+        "time_column reads every file, so give this file the others' header line in a copy")
+
+
+def _refuse_header_lines_differ(paths: list, encoding, delimiter: str, time_columns: tuple,
+                                rows_before_header: int) -> None:
+    """Raise where the files' headers stand on different lines (blocks of other lengths).
+
+    A logger that writes a block of metadata above its header (serial numbers, program
+    name, calibration lines) of another length in some files (a line added at a
+    program change) cannot be read with one ``rows_before_header``: the per-file hint
+    ("set rows_before_header = 3") fixed one file and refused the next with another
+    number. Names every length found and the files of each. Files that cannot be
+    decoded or hold no such line are left to the per-file checks.
+    """
+    found: dict[int, list] = {}
+    for path in paths:
+        try:
+            text, _ = _decode(path, encoding)
+        except (InputFileError, UnicodeError, OSError):
+            continue
+        number = _header_line_number(text, delimiter, time_columns[0])
+        if number is not None:
+            found.setdefault(number, []).append(str(path))
+    if len(found) < 2:
+        return
+    counts = "; ".join(f"{number} line(s) above it in {_file_list(found[number])}"
+                       for number in sorted(found))
+    raise MissingColumnError(
+        f"[input] rows_before_header = {rows_before_header}: the input files have blocks of "
+        f"different lengths above their header line (the line holding time_column = "
+        f"{setting_text(time_columns[0])}): {counts}; one rows_before_header reads every "
+        "file, so give every file the same number of lines above its header in copies "
+        "(remove the extra ones)")
+
+
 def _code_hint(name, values, canonical, derived, missing) -> str:
     """The undeclared-missing-code hint of variable `name`, looked for in the file column
     its values come from: PPFD for an Rg derived from it, the turbulent flux and then the
@@ -2534,6 +2760,76 @@ def _complete_overlap(stamps, lines, sources, values):
             int(first_of.sum()), where)
 
 
+#: Shifts of one file's stamps tried on overlapping files that disagree [intervals]
+#: (1 to 4 records: a start/end or middle convention, a clock set off) and [minutes]
+#: (an hour or two: UTC or summer time against local standard time)
+_OVERLAP_SHIFT_RECORDS = (1, 2, 3, 4)
+_OVERLAP_SHIFT_MINUTES = (60.0, 120.0)
+#: Share of the shifted overlap's stamps whose rows must be equal for a shift to be
+#: named (our choice: a few rows may differ where a download rewrote its last record)
+_OVERLAP_SHIFT_SHARE = 0.95
+
+
+def _shifted_overlap(parts: list, source_a: str, source_b: str) -> str:
+    """The fix where two overlapping files agree once one file's stamps are shifted.
+
+    Two downloads of one logger whose overlap disagrees at every stamp, but agrees row
+    by row with the second file's stamps moved by whole records or an hour: the stamps
+    changed their convention (interval start against end) or clock between the files.
+    The refusal blamed the overlap ("remove one copy") or two loggers' files sharing
+    columns; it now names the shift.
+
+    Parameters
+    ----------
+    parts : list of dict
+        The files read (``"source"``, ``"stamps"``, ``"values"``).
+    source_a, source_b : str
+        The two files of the first stamp that disagrees.
+
+    Returns
+    -------
+    str
+        The fix naming the shift [minutes], or "" where no shift makes the overlap
+        agree.
+
+    References
+    ----------
+    Loggers stamp a record at the start, middle or end of its averaging interval, and
+    a clock kept on summer time or UTC runs an hour or two from local standard time
+    (common practice); the shifts tried are those.
+    """
+    by_source = {part["source"]: part for part in parts}
+    if source_a not in by_source or source_b not in by_source:
+        return ""
+
+    def table(part):
+        frame = pd.DataFrame(part["values"], index=pd.DatetimeIndex(part["stamps"]))
+        return frame[~frame.index.duplicated(keep="first")]
+
+    first, second = table(by_source[source_a]), table(by_source[source_b])
+    overlap = first.index.intersection(second.index)
+    step = _median_step(first.index)
+    if step is None or overlap.size < 48:
+        return ""
+    shifts = sorted({k * step for k in _OVERLAP_SHIFT_RECORDS} | set(_OVERLAP_SHIFT_MINUTES))
+    for minutes in [sign * m for m in shifts for sign in (1, -1)]:
+        moved = second.copy()
+        moved.index = second.index + pd.Timedelta(minutes=minutes)
+        common = first.index.intersection(moved.index)
+        if common.size < 48:
+            continue
+        left, right = first.loc[common].to_numpy(), moved.loc[common].to_numpy()
+        equal = ((left == right) | (np.isnan(left) & np.isnan(right))).all(axis=1)
+        if equal.mean() >= _OVERLAP_SHIFT_SHARE:
+            direction = "later" if minutes > 0 else "earlier"
+            return (f"the overlap agrees row by row once the stamps of {source_b!r} are read "
+                    f"{abs(minutes):g} minutes {direction}: the two files stamp the same "
+                    "records differently (the start against the end of the interval, or a "
+                    "clock set another way between the downloads?); correct one file's "
+                    "stamps in a copy")
+    return ""
+
+
 def _combine(parts: list) -> dict:
     """Join the files' rows in time order; merge identical rows, refuse conflicting ones."""
     names = list(parts[0]["values"])
@@ -2581,6 +2877,8 @@ def _combine(parts: list) -> dict:
                        "look like two loggers' files joined by stamp: keep the column(s) of "
                        f"{', '.join(differing)} in one of them only (in a copy), or rename "
                        "them in the other")
+            if sources[a] != sources[b]:
+                fix = _shifted_overlap(parts, sources[a], sources[b]) or fix
             raise DuplicateTimestampError(
                 f"overlapping files disagree: stamp {pd.Timestamp(stamps[a])} is on line "
                 f"{int(lines[a])} of {sources[a]!r} and on line {int(lines[b])} of "

@@ -1189,8 +1189,9 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
             if seconds:
                 raise SpacingError(seconds)
             raise SpacingError(f"the most common spacing between stamps is {typical:g} minutes "
-                               f"({share:.0%} of steps); fluxpart needs 30- or 60-minute "
-                               "records: average the file to 30 or 60 minutes first")
+                               f"({share:.0%} of steps{_spacing_where(steps, typical, describe)}); "
+                               "fluxpart needs 30- or 60-minute records: average "
+                               f"{_spacing_what(steps, typical)} to 30 or 60 minutes first")
         declared = int(typical)
     irregular = np.flatnonzero(np.abs(steps / declared - np.round(steps / declared)) > 1e-9)
     if irregular.size:
@@ -1213,8 +1214,63 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
             f"stamps are {steps[irregular[0]]:g} minutes apart at {describe(row)} "
             f"({stamps[row - 1]} -> {stamps[row]}), not a whole multiple of the "
             f"{declared}-minute interval; {irregular.size} such step(s), spacings found: "
-            f"{', '.join(found)} minutes{mismatch}")
+            f"{', '.join(found)} minutes{mismatch}"
+            f"{_grid_moved(stamps, row, declared, describe)}")
     return int(declared)
+
+
+def _grid_moved(stamps: pd.DatetimeIndex, row: int, interval: int, describe) -> str:
+    """``"; the stamps from ... to ... lie N minute(s) later ..."`` where the clock grid
+    moves at stamp `row` and stays moved for a day or more, else ``""`` (shift in
+    [minutes]).
+
+    A logger clock set by hand or drifting by whole minutes between two
+    synchronisations writes its stamps at minute 1 and 31 (or 29 and 59) from one
+    record on: a single step of 31 or 29 minutes, then regular records on another
+    grid. The refusal named only the odd step; the moved grid and its extent tell the
+    cause (our choice of length: a day of records, as for the interval change).
+    """
+    minutes = np.asarray((stamps - stamps[0]) / pd.Timedelta(minutes=1), dtype=float)
+    phase = np.mod(minutes, interval)
+    before, after = phase[row - 1], phase[row]
+    if np.isclose(before, after):
+        return ""
+    same = np.isclose(phase[row:], after)
+    run = int(np.argmin(same)) if not same.all() else same.size
+    if run < 24 * 60 // interval:
+        return ""
+    moved = (after - before) % interval
+    shift = moved if moved <= interval / 2 else moved - interval
+    end = (f"to {describe(row + run - 1)}" if row + run < stamps.size else
+           "to the last record")
+    return (f"; the stamps from {describe(row)} {end} ({run} records) lie "
+            f"{abs(shift):g} minute(s) {'later' if shift > 0 else 'earlier'} on the clock "
+            "grid than those before (a logger clock set or drifting by whole minutes?): "
+            "align them in a copy of the file")
+
+
+def _spacing_where(steps: np.ndarray, typical: float, describe) -> str:
+    """Where the steps of a refused spacing run: ``", from line .. to line .."``.
+
+    Several files read as one record (30-minute files of one half-year and 10-minute
+    files of the other, a logger reprogrammed) were refused naming no file; the first
+    and last record of the steps of `typical` minutes name them (`describe` gives file
+    and line).
+    """
+    at = np.flatnonzero(steps == typical)
+    # the first step's earlier stamp may close a stretch of another spacing (the last
+    # record of a 30-minute file): name its later stamp, unless it opens the record
+    first = describe(int(at[0]) + (at[0] > 0))
+    last = describe(int(at[-1]) + 1)
+    return f", from {first} to {last}"
+
+
+def _spacing_what(steps: np.ndarray, typical: float) -> str:
+    """``"the file"``, or ``"those records"`` where other steps are 30 or 60 minutes."""
+    others = np.isin(steps, INTERVALS_MINUTES).sum()
+    # a record that is 30- or 60-minute in part (another file, another program) keeps
+    # that part: only the records of the other spacing need averaging
+    return "those records" if others else "the file"
 
 
 def interval_change_warning(stamps: pd.DatetimeIndex, interval_minutes: int,
