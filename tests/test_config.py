@@ -401,3 +401,24 @@ def test_e0_fallback_docstring_says_what_the_daytime_method_takes():
     entry = " ".join(entry.split())
     assert "the year's nighttime E0" not in entry
     assert '"all_years"' in entry and "median of the nighttime method's E0" in entry
+
+
+def test_events_read_as_iso_dates_from_toml(tmp_path):
+    """[processing] events: TOML dates (RFC 3339 full-date, a TOML native type), date-times
+    and ISO 8601 texts are read as sorted distinct ISO texts and written back as a list."""
+    path = tmp_path / "site.toml"
+    path.write_text("[processing]\nevents = [2021-10-02, \"2021-06-15 12:30\", "
+                    "\"2021-10-02\"]\n", encoding="utf-8")
+    config = Config.from_toml(path)
+    assert config.events == ("2021-06-15T12:30", "2021-10-02")
+    assert config.to_dict()["events"] == ["2021-06-15T12:30", "2021-10-02"]
+    assert Config().events == ()
+
+
+@pytest.mark.parametrize("events", [["20/07/2021"], ["2021-07-20T12:00:30"],
+                                    ["2021-07-20T12:00+02:00"], [20210720]])
+def test_events_that_are_no_local_date_are_refused_naming_the_setting(events):
+    """An event must be a date or a date-time to the minute in local standard time; the
+    error names the setting and shows the expected form."""
+    with pytest.raises(ConfigError, match=r"\[processing\] events = .*YYYY-MM-DD"):
+        Config(events=tuple(events))

@@ -574,3 +574,29 @@ def test_the_fallback_e0_warning_states_the_value_the_windows_took():
     assert "2020: 246 K, 2021: 226 K, 2022: 249 K" in text
     one_year = _fallback_e0_text(parameters, fell_back, years.iloc[[1]])
     assert one_year == "the nighttime method's E0 (236 K)"
+
+
+def test_outage_across_the_maize_harvest_with_the_event_declared():
+    """Known-truth recovery on the invented maize year (harvest on day 275, 2 October):
+    a 24-day NEE outage across the harvest; declared as an event (Config.events), the
+    days after the harvest are filled from bare ground only. Their summed error falls
+    from -9.5 to -1.6 g C m-2 (seed 0, measured); an event outside the record is warned."""
+    import warnings
+
+    frame, truth = demo.site_year(seed=0, variant="c4")
+    outage = (frame.index >= "2021-09-20") & (frame.index < "2021-10-14")
+    frame.loc[outage, "nee"] = np.nan
+    after = outage & (frame.index >= "2021-10-02")
+    errors = {}
+    for events in ((), ("2021-10-02", "2012-10-02")):
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            result = process(frame, demo.site(), Config(
+                events=events, ustar_bootstrap_draws=20, random_error_draws=50))
+        filled = result.timeseries["nee_filled"].to_numpy()
+        errors[events] = flux_to_carbon(filled[after] - truth["nee"].to_numpy()[after],
+                                        30).sum()
+        outside = [w for w in caught if "events: 2012-10-02 lies outside" in str(w.message)]
+        assert len(outside) == (1 if events else 0)
+    assert errors[()] < -5.0
+    assert abs(errors[("2021-10-02", "2012-10-02")]) < 3.0
