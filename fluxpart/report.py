@@ -626,6 +626,17 @@ def _fill_estimate(config: dict) -> str:
     return "Each fill is the mean of the similar records."
 
 
+def _fill_events(config: dict) -> str:
+    """The declared events no fill crosses, as the result's config says (none in a result
+    written before 0.22.0)."""
+    events = list(config.get("events") or ())
+    if not events:
+        return ""
+    return (f" Declared events ({', '.join(_setting_value(e) for e in events)}: a harvest, "
+            "cut, fire or the like) cut the record into pieces; each NEE gap was filled from "
+            "the records of its own piece only.")
+
+
 def _methods(config: dict, has_random: bool) -> tuple[str, list[str]]:
     cited = ["papale2006", "reichstein2005", "lloyd1994", "lasslop2010", "kopp2011"]
     method = config.get("ustar_method", "moving_point")
@@ -652,7 +663,8 @@ def _methods(config: dict, has_random: bool) -> tuple[str, list[str]]:
         f"u* threshold: {ustar}. Night records below the threshold are removed.",
         "Gap filling of NEE and the drivers by marginal distribution sampling (Reichstein et "
         "al. 2005, appendix): similar Rg, Tair and VPD within widening time windows, then the "
-        f"mean diurnal course; fill quality classes A, B, C. {_fill_estimate(config)}",
+        f"mean diurnal course; fill quality classes A, B, C. {_fill_estimate(config)}"
+        f"{_fill_events(config)}",
         "Nighttime partitioning: Lloyd–Taylor respiration (Lloyd & Taylor 1994); E0 per year "
         f"from the night data with a free Rref in each {_setting_value(config.get('e0_window_days'))}"
         f"-day window (e0_method = {_setting_value(config.get('e0_method'))}), Rref in "

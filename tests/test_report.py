@@ -1169,3 +1169,18 @@ def test_a_method_difference_rounded_to_zero_shows_no_minus_sign():
     line = re.sub(r"<[^>]+>", "", re.search(r"Method agreement:</strong>(.*?)</li>",
                                               summary).group(1))
     assert "GPP +0.0 %" in line and "Reco -1.2 %" in line and "-0.0" not in line
+
+
+def test_methods_name_the_declared_events_only_where_the_result_has_them():
+    """The report draws only what was written: a result's config with ``events`` (0.22.0)
+    names them in the gap-filling item; one without (or written before) says nothing of
+    events."""
+    def gap_filling_item(config):
+        listed, _ = report._methods(config, False)
+        return next(item for item in listed.split("<li>") if item.startswith("Gap filling"))
+
+    declared = gap_filling_item({"events": ["2021-10-02", "2022-01-20T14:00"]})
+    assert "Declared events (2021-10-02, 2022-01-20T14:00" in declared
+    assert "its own piece only" in declared
+    assert "events" not in gap_filling_item({}).lower()
+    assert "events" not in gap_filling_item({"events": []}).lower()
