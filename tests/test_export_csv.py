@@ -76,6 +76,10 @@ def test_every_table_is_a_csv_described_in_one_csvw_file(exported):
         header, rows = _rows(target / table["url"])
         names = [column["name"] for column in table["tableSchema"]["columns"]]
         assert header == names, table["url"]
+        # a column name is a URI-template variable (CSVW 2015, RFC 6570 "varname"), not
+        # starting with "_" (reserved)
+        assert all(re.fullmatch(r"[A-Za-z0-9][A-Za-z0-9_]*(\.[A-Za-z0-9_]+)*", n)
+                   for n in names), names
         parquet = pq.read_table(folder / table["url"].replace(".csv", ".parquet"))
         assert header == parquet.column_names, table["url"]
         assert len(rows) == parquet.num_rows and all(len(r) == len(header) for r in rows)
