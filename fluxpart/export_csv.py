@@ -75,7 +75,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import OutputError
-from .schema import TIME_CONVENTION, describe
+from .schema import TIME_CONVENTION, units_for_table
 from .store import _stored_index, file_mode, folder_mode, remove_stale, set_mode
 
 __all__ = ["DESCRIPTION_PROPERTY", "METADATA_NAME", "UNIT_PROPERTY", "check_target",
@@ -187,15 +187,31 @@ def _table_csv(frame: pd.DataFrame, offset: str) -> tuple[bytes, list[str], list
     return buffer.getvalue().encode("utf-8"), names, types
 
 
-def _table_metadata(name: str, frame: pd.DataFrame, names: list[str], types: list) -> dict:
-    units = frame.attrs.get("units") or {}
-    texts = frame.attrs.get("descriptions") or {}
+def _as_stored(name: str, frame: pd.DataFrame, stored: bool) -> tuple[pd.DataFrame, dict]:
+    """`frame` as a result folder stores it, and column -> (unit, description).
+
+    `stored`: the table was read from a result folder (:func:`fluxpart.store.read_table`),
+    whose ``attrs`` hold the unit and description of every stored column as the file
+    has them: those are used, so an older result keeps its own. Otherwise (a result in
+    memory) the table gets the index name and the units a result folder would store
+    (:func:`fluxpart.resultdir._write_tables`), so both routes give the same bytes.
+    """
+    if stored:
+        units = frame.attrs.get("units") or {}
+        texts = frame.attrs.get("descriptions") or {}
+        return frame, {column: (unit, texts.get(column, "")) for column, unit in units.items()}
+    from .resultdir import _unit_table
+
+    frame = frame if frame.index.name is not None else frame.rename_axis("row")
+    columns = [frame.index.name, *map(str, frame.columns)]
+    return frame, units_for_table(_unit_table(name), columns)
+
+
+def _table_metadata(name: str, frame: pd.DataFrame, names: list[str], types: list,
+                    described: dict) -> dict:
     columns = []
     for column, datatype in zip(names, types, strict=True):
-        if column in units:
-            unit, description = units[column], texts.get(column, "")
-        else:                                    # a Result in memory without attrs
-            unit, description = describe(name, column)
+        unit, description = described.get(column, ("", ""))
         entry = {"name": column, "titles": column, "datatype": datatype}
         if unit:
             entry[UNIT_PROPERTY] = unit
@@ -213,7 +229,7 @@ def _ordered(tables: dict) -> list[str]:
     return [n for n in _FIRST if n in tables] + sorted(n for n in tables if n not in _FIRST)
 
 
-def csv_tables(result, source: str | None = None) -> dict[str, bytes]:
+def csv_tables(result, source: str | None = None, *, stored: bool = False) -> dict[str, bytes]:
     """The files of the CSV export of `result`: file name -> bytes.
 
     Parameters
@@ -222,6 +238,12 @@ def csv_tables(result, source: str | None = None) -> dict[str, bytes]:
         A result from :func:`fluxpart.process` or :func:`fluxpart.load`.
     source : str, optional
         The fluxpart release that computed the result (default: this one).
+    stored : bool, default False
+        True: `result` was loaded from a result folder and each column's unit and
+        description are taken from its tables' ``attrs`` (the Parquet metadata, as an
+        older release wrote it). False: they are those a result folder of this release
+        stores (:func:`fluxpart.schema.units_for_table`), the index named as it does;
+        for a result of this release both give the same bytes.
 
     Returns
     -------
@@ -241,10 +263,10 @@ def csv_tables(result, source: str | None = None) -> dict[str, bytes]:
     files, described = {}, []
     interval = None
     for name in _ordered(tables):
-        frame = tables[name]
+        frame, units = _as_stored(name, tables[name], stored)
         data, names, types = _table_csv(frame, offset)
         files[f"{name}.csv"] = data
-        described.append(_table_metadata(name, frame, names, types))
+        described.append(_table_metadata(name, frame, names, types, units))
         interval = interval if interval is not None else frame.attrs.get("interval_minutes")
     if interval is None and len(result.timeseries.index) > 1:
         steps = np.diff(result.timeseries.index.to_numpy().astype("datetime64[s]")
@@ -331,16 +353,16 @@ def write_csv(result, folder) -> Path:
     """
     target = Path(folder)
     check_target(target)
-    source = None
+    source, stored = None, False
     if isinstance(result, (str, os.PathLike)):
         from .export import _computed_by
         from .result import load
 
         directory = result
         result = load(directory)
-        source = _computed_by(directory)
+        source, stored = _computed_by(directory), True
     started = time.time()
-    files = csv_tables(result, source)
+    files = csv_tables(result, source, stored=stored)
     parent = target.absolute().parent
     for ancestor in (parent, *parent.parents):
         if ancestor.exists() or ancestor.is_symlink():

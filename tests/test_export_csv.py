@@ -349,10 +349,24 @@ def test_the_csv_writer_knows_no_orchestrator():
     for node in ast.walk(tree):
         if isinstance(node, ast.ImportFrom) and node.level == 1:
             assert (node.module or "") in ("errors", "schema", "store", "export", "result",
-                                           ""), node.module
+                                           "resultdir", ""), node.module
     code = ("import sys, fluxpart.export_csv; "
             "print(sorted(m for m in sys.modules if m.startswith('fluxpart.')))")
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           timeout=60, check=True)
     loaded = set(eval(done.stdout))
     assert not loaded & {"fluxpart.pipeline", "fluxpart.gapfill", "fluxpart.partition"}, loaded
+
+
+def test_a_result_in_memory_exports_the_same_bytes_as_its_folder(written_demo, exported):
+    """Same result, same bytes by either route: the Result that ``process`` returned and
+    the folder it wrote give identical files (the index named and the units as the folder
+    stores them, e.g. ``row`` of the u* table and the units of the ``parameters`` class)."""
+    from fluxpart.export_csv import csv_tables
+
+    result, _ = written_demo
+    _, target = exported
+    files = csv_tables(result)
+    assert sorted(files) == sorted(p.name for p in target.iterdir())
+    for name, data in files.items():
+        assert data == (target / name).read_bytes(), name
