@@ -370,3 +370,27 @@ def test_a_result_in_memory_exports_the_same_bytes_as_its_folder(written_demo, e
     assert sorted(files) == sorted(p.name for p in target.iterdir())
     for name, data in files.items():
         assert data == (target / name).read_bytes(), name
+
+
+def test_missing_infinite_and_quoted_cells_read_back():
+    """Known truth on an invented table: NaN, NaT and a missing label are empty fields;
+    infinities are XML Schema's ``INF``/``-INF`` (W3C XML Schema 1.1 Part 2, 3.3.5 double,
+    the lexical space CSVW's ``double`` uses); a label holding a comma or a quote is quoted
+    with doubled quotes and reads back whole (RFC 4180 section 2, rules 6 and 7)."""
+    import pandas as pd
+
+    from fluxpart.export_csv import _table_csv
+
+    frame = pd.DataFrame({"value": [1.0, np.nan, np.inf, -np.inf],
+                          "stamp": pd.to_datetime(["2021-01-01 00:30", None, None, None]),
+                          "note": ["a,b", None, 'say "hi"', ""],
+                          "ok": [True, False, True, False]},
+                         index=pd.Index([0, 1, 2, 3], name="row"))
+    data, names, types = _table_csv(frame, "-03:30")
+    assert names == ["row", "value", "stamp", "note", "ok"]
+    assert types[1] == "double" and types[4] == "boolean"
+    rows = list(csv.reader(io.StringIO(data.decode("utf-8"), newline="")))
+    assert rows[1] == ["0", "1.0", "2021-01-01T00:30:00-03:30", "a,b", "true"]
+    assert rows[2] == ["1", "", "", "", "false"]
+    assert rows[3][1:4] == ["INF", "", 'say "hi"'] and rows[4][1] == "-INF"
+    assert float(rows[3][1]) == np.inf and float(rows[4][1]) == -np.inf   # Python reads INF
