@@ -169,18 +169,35 @@ def _command_report(args) -> int:
 
 
 def _command_export(args) -> int:
-    """``fluxpart export``: refuse a NetCDF file inside a result folder."""
+    """``fluxpart export``: refuse a NetCDF file or CSV folder inside a result folder, and
+    check both targets before either is written."""
     from .errors import OutputError
     from .export import command_export
 
-    target = Path(args.netcdf).absolute().resolve()
-    _refuse_network_dataset("--netcdf", args.netcdf, target)
-    enclosing = _enclosing_result(target.parent)
-    if enclosing is not None and enclosing / "report" not in target.parents:
-        raise OutputError(f"--netcdf {args.netcdf!r} is inside the result folder "
-                          f"{str(enclosing)!r}, which must hold only the files its manifest "
-                          "lists (a file there would make load, verify and diff refuse it); "
-                          "write it outside the folder")
+    if args.netcdf is None and args.csv is None:
+        raise OutputError("fluxpart export: give --netcdf FILE, --csv FOLDER or both (see "
+                          "fluxpart export --help)")
+    if args.netcdf is not None:
+        target = Path(args.netcdf).absolute().resolve()
+        _refuse_network_dataset("--netcdf", args.netcdf, target)
+        enclosing = _enclosing_result(target.parent)
+        if enclosing is not None and enclosing / "report" not in target.parents:
+            raise OutputError(f"--netcdf {args.netcdf!r} is inside the result folder "
+                              f"{str(enclosing)!r}, which must hold only the files its manifest "
+                              "lists (a file there would make load, verify and diff refuse it); "
+                              "write it outside the folder")
+    if args.csv is not None:
+        from .export_csv import check_target
+
+        target = Path(args.csv).absolute().resolve()
+        _refuse_network_dataset("--csv", args.csv, target)
+        enclosing = _enclosing_result(target)
+        if enclosing is not None:
+            raise OutputError(f"--csv {args.csv!r} is inside the result folder "
+                              f"{str(enclosing)!r}, which must hold only the files its manifest "
+                              "lists (files there would make load, verify and diff refuse it); "
+                              "write the CSV folder outside it")
+        check_target(Path(args.csv))
     return command_export(args)
 
 
@@ -485,13 +502,21 @@ def _parser() -> argparse.ArgumentParser:
     batch.set_defaults(handler=_lazy("batch", "command_batch"))
 
     export = commands.add_parser(
-        "export", help="write a result folder as CF-1.10 NetCDF (needs the netcdf extra)",
-        description="Write the record series (at the record interval, 30 or 60 min) and the "
-        "daily series of a result folder as one CF-1.10 NetCDF file, carbon fluxes in "
-        "kg m-2 s-1, times in UTC with cell bounds. Exit 0: written; 2: error (no file left).")
+        "export", help="write a result folder as CF-1.10 NetCDF (needs the netcdf extra) "
+        "and/or as CSV tables with units (W3C CSVW metadata)",
+        description="--netcdf: write the record series (at the record interval, 30 or 60 "
+        "min), the daily and monthly series and the annual budget with its 95 % interval "
+        "of a result folder as one CF-1.10 NetCDF file, carbon fluxes in kg m-2 s-1, sums "
+        "in g m-2, times in UTC with cell bounds. --csv: write every table as a plain CSV "
+        "file (UTF-8, comma, ISO 8601 times with the UTC offset, empty = missing) into a "
+        "new folder with csv-metadata.json (W3C CSVW: each column's datatype, UDUNITS-2 "
+        "unit and description, the site and the time convention). Exit 0: written; 2: "
+        "error (no file or folder left half-written).")
     export.add_argument("directory", type=_path, help="result folder written by run or demo")
-    export.add_argument("--netcdf", type=_path, required=True, metavar="FILE",
-                        help="NetCDF file to write (record and daily series)")
+    export.add_argument("--netcdf", type=_path, metavar="FILE",
+                        help="NetCDF file to write (record, daily, monthly and annual series)")
+    export.add_argument("--csv", type=_path, metavar="FOLDER",
+                        help="new (or empty) folder for the CSV tables and csv-metadata.json")
     export.set_defaults(handler=_command_export)
     return parser
 
@@ -504,7 +529,8 @@ _AFTER_STOP = {
              "or be only partly rewritten (network.json then says so and read_network refuses "
              "them): run the batch again, which skips the sites up to date and rewrites them "
              "whole",
-    "export": "the NetCDF file is the earlier one (or absent), never half-written",
+    "export": "the NetCDF file is the earlier one (or absent), never half-written; the CSV "
+              "folder is absent or complete",
     "report": "the report folder holds the earlier report (or none) or the complete new one, "
               "never a mix",
     "verify": "nothing was written",

@@ -7,7 +7,7 @@ themselves and the site as global attributes. :func:`to_xarray` builds that
 :class:`xarray.Dataset` from a :class:`~fluxpart.result.Result` (in memory or loaded
 from a result folder) and :func:`write_netcdf` writes it.
 
-Layout (one file, two time axes):
+Layout (one file, four time axes):
 
 - ``time`` (one per record): NEE, GPP and Reco of both methods as carbon mass fluxes
   [kg m-2 s-1] (the record means; ``cell_methods = "time: mean"``), the 1-sigma random
@@ -18,7 +18,14 @@ Layout (one file, two time axes):
 - ``day`` (one per local standard day): the same fluxes as daily means [kg m-2 s-1]
   and as daily sums [g m-2, carbon] (``cell_methods = "day: sum"``), with their 1-sigma
   where the run estimated it;
-- ``time_bounds`` and ``day_bounds`` give each cell's start and end; coordinate values
+- ``month`` (one per calendar month of local standard time) and ``year`` (one per budget
+  year, bounded by the annual table's ``period_start`` and ``period_end``): the sums
+  ``<flux>_monthly_sum`` / ``<flux>_annual_sum`` [g m-2, carbon], the means
+  [kg m-2 s-1], the 1-sigma ``*_sum_sigma`` and, for the annual budget, the ends of its
+  stated 95 % interval ``*_annual_sum_ci95_low`` / ``_high``, the coverage shares and
+  the u* threshold of each year (:func:`_period_variables`);
+- ``time_bounds``, ``day_bounds``, ``month_bounds`` and ``year_bounds`` give each cell's
+  start and end; coordinate values
   are the cell midpoints, in UTC (the site's local standard time minus its
   ``utc_offset``, which is also a global attribute);
 - scalar coordinates ``lat``, ``lon`` and ``station_name`` (``featureType =
@@ -159,7 +166,8 @@ def _bounds(starts: pd.DatetimeIndex, length: pd.Timedelta, offset: pd.Timedelta
 
 
 def to_xarray(result):
-    """Return the record (30 or 60 min) and daily series of a result as a CF-1.10 Dataset.
+    """Return the record (30 or 60 min), daily, monthly and annual series of a result as a
+    CF-1.10 Dataset.
 
     Parameters
     ----------
@@ -170,9 +178,11 @@ def to_xarray(result):
     Returns
     -------
     xarray.Dataset
-        Dimensions ``time`` (records) and ``day`` (local standard days), ``nv`` = 2
-        for the bounds. Fluxes of carbon in kg m-2 s-1 (record and daily means) and
-        daily sums in g m-2 (carbon); drivers in CF units; flags with
+        Dimensions ``time`` (records), ``day`` (local standard days), ``month`` and
+        ``year`` (budget years), ``nv`` = 2 for the bounds. Fluxes of carbon in
+        kg m-2 s-1 (record and period means) and daily, monthly and annual sums in
+        g m-2 (carbon) with their 1-sigma and, for the years, the 95 % interval;
+        drivers in CF units; flags with
         ``flag_values``/``flag_meanings``; times in UTC with bounds; the site as
         global attributes. Each variable's unit is a UDUNITS-2 string. For a result
         folder computed by another release, ``source`` names that release and
@@ -304,11 +314,16 @@ def to_xarray(result):
                          "or ends within, whose daily sums and means cover only the records "
                          "present", "units": "1"})
 
+    month_coord = _period_variables(variables, result.monthly, "month", interval, offset)
+    year_coord = _period_variables(variables, result.annual, "year", interval, offset)
+
     coords = {
         "time": ("time", time, {"standard_name": "time", "long_name": "middle of the averaging "
                                 "interval, UTC", "axis": "T", "bounds": "time_bounds"}),
         "day": ("day", day, {"standard_name": "time", "long_name": "middle of the local "
                              "standard day, UTC", "bounds": "day_bounds"}),
+        "month": month_coord,
+        "year": year_coord,
         "lat": ((), float(site.latitude), {"standard_name": "latitude",
                                            "units": "degrees_north"}),
         "lon": ((), float(site.longitude), {"standard_name": "longitude",
@@ -319,13 +334,14 @@ def to_xarray(result):
     data_vars = {name: spec if len(spec) == 3 else (*spec, {})
                  for name, spec in variables.items()}
     dataset = xr.Dataset(data_vars=data_vars, coords=coords)
-    for name in ("time", "day", "time_bounds", "day_bounds"):
+    for name in ("time", "day", "month", "year", "time_bounds", "day_bounds", "month_bounds",
+                 "year_bounds"):
         dataset[name].encoding.update({"units": _TIME_UNITS, "calendar": _CALENDAR,
                                        "dtype": "float64"})
     for variable in dataset.data_vars.values():
         # NaN marks a missing float; the flags have no missing value (no _FillValue)
         variable.encoding["_FillValue"] = np.nan if variable.dtype.kind == "f" else None
-    for name in ("time", "day", "lat", "lon"):
+    for name in ("time", "day", "month", "year", "lat", "lon"):
         # coordinates have no missing values (CF-1.10 section 2.5.1), so no _FillValue,
         # which xarray would otherwise give every float variable
         dataset[name].encoding["_FillValue"] = None
@@ -350,6 +366,131 @@ def to_xarray(result):
         "comment": _CAUTION,
     }
     return dataset
+
+
+_PERIOD_TEXT = {"month": ("monthly", "calendar month of local standard time"),
+                "year": ("annual", "budget year (from [processing] year_start), local "
+                         "standard time")}
+
+
+def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: int,
+                      offset: pd.Timedelta):
+    """Add the sums of one budget table (``monthly`` or ``annual``) to `variables`.
+
+    Each flux of :data:`_FLUXES` gets ``<flux>_<period>_sum`` [g m-2, carbon] with
+    ``cell_methods = "<dim>: sum (comment: over the records present)"``, its mean
+    ``<flux>_<period>_mean`` [kg m-2 s-1] over the seconds of the records present, the
+    1-sigma ``<flux>_<period>_sum_sigma`` and, where the table states them (the annual
+    budget), the ends of the 95 % interval ``<flux>_<period>_sum_ci95_low`` /
+    ``_high``, linked as ``ancillary_variables`` with the coverage shares
+    ``share_measured_<period>`` and ``share_present_<period>``. The annual table adds
+    ``ustar_threshold_annual`` [m s-1].
+
+    Parameters
+    ----------
+    variables : dict
+        Name -> (dims, values, attrs); changed in place (also ``<dim>_bounds``).
+    table : pandas.DataFrame
+        ``Result.monthly`` (index: first day of the month) or ``Result.annual``
+        (index: budget year; ``period_start`` / ``period_end`` give its local bounds).
+    dim : str
+        ``"month"`` or ``"year"``: the dimension.
+    interval : int
+        Record length [min].
+    offset : pandas.Timedelta
+        Local standard time minus UTC.
+
+    Returns
+    -------
+    tuple
+        The coordinate ``(dim, UTC midpoints, attrs)``.
+
+    References
+    ----------
+    Eaton, B. et al. (2022). CF Conventions 1.10, sections 3.4 (ancillary data), 7.1
+    (cell boundaries), 7.3 (cell methods; free text as ``(comment: ...)``).
+    """
+    period, text_of_cell = _PERIOD_TEXT[dim]
+    if dim == "year" and {"period_start", "period_end"} <= set(table.columns):
+        starts = pd.DatetimeIndex(table["period_start"])
+        ends = pd.DatetimeIndex(table["period_end"])
+    elif dim == "year":                      # an older table: calendar years
+        starts = pd.DatetimeIndex([pd.Timestamp(year=int(y), month=1, day=1)
+                                   for y in table.index])
+        ends = pd.DatetimeIndex([pd.Timestamp(year=int(y) + 1, month=1, day=1)
+                                 for y in table.index])
+    else:
+        starts = pd.DatetimeIndex(table.index)
+        ends = starts + pd.offsets.MonthBegin(1)
+    start_utc = (starts - offset).to_numpy()
+    end_utc = (ends - offset).to_numpy()
+    middle = start_utc + (end_utc - start_utc) / 2
+    variables[f"{dim}_bounds"] = ((dim, "nv"), np.stack([start_utc, end_utc], axis=1))
+    seconds = (table["records"].to_numpy(dtype=float) * interval * 60.0
+               if "records" in table.columns else (end_utc - start_utc).astype(
+                   "timedelta64[s]").astype(float))
+    seconds = np.where(seconds > 0, seconds, np.nan)
+    present = None
+    if {"records", "records_expected"} <= set(table.columns):
+        expected = table["records_expected"].to_numpy(dtype=float)
+        present = table["records"].to_numpy(dtype=float) / np.where(expected > 0, expected,
+                                                                     np.nan)
+    method = f"{dim}: sum (comment: over the records present)"
+    for name, (_, text) in _FLUXES.items():
+        if name not in table.columns:
+            continue
+        grams = table[name].to_numpy(dtype=float)
+        mean = {"long_name": f"{period} mean of {text}", "units": "kg m-2 s-1",
+                "cell_methods": f"{dim}: mean (comment: over the records present)"}
+        total = {"long_name": f"{period} sum of {text}; grams of carbon", "units": "g m-2",
+                 "cell_methods": method}
+        if name.startswith("gpp"):           # the mean is the flux; the sum [g m-2] is not
+            mean["standard_name"] = STANDARD_NAMES["gpp"]
+        ancillary = []
+        sigma = f"{name}_sigma" if f"{name}_sigma" in table.columns else \
+            f"{name}_uncertainty_total"
+        if sigma in table.columns:
+            key = f"{name}_{period}_sum_sigma"
+            variables[key] = ((dim,), table[sigma].to_numpy(dtype=float), {
+                "long_name": f"one standard deviation of the {period} sum of {name}; grams "
+                             "of carbon", "units": "g m-2"})
+            ancillary.append(key)
+        for end, word in (("low", "lower"), ("high", "upper")):
+            column = f"{name}_ci95_{end}"
+            if column in table.columns:
+                key = f"{name}_{period}_sum_ci95_{end}"
+                variables[key] = ((dim,), table[column].to_numpy(dtype=float), {
+                    "long_name": f"{word} end of the stated 95 % interval of the {period} "
+                                 f"sum of {name} (the budget table's {column}); grams of "
+                                 "carbon",
+                    "units": "g m-2"})
+                ancillary.append(key)
+        if "share_measured" in table.columns:
+            ancillary.append(f"share_measured_{period}")
+        if present is not None:
+            ancillary.append(f"share_present_{period}")
+            mean["ancillary_variables"] = f"share_present_{period}"
+        if ancillary:
+            total["ancillary_variables"] = " ".join(ancillary)
+        variables[f"{name}_{period}_mean"] = ((dim,), grams * 1e-3 / seconds, mean)
+        variables[f"{name}_{period}_sum"] = ((dim,), grams, total)
+    if "share_measured" in table.columns:
+        variables[f"share_measured_{period}"] = (
+            (dim,), table["share_measured"].to_numpy(dtype=float),
+            {"long_name": f"share of the {dim}'s records with measured NEE", "units": "1"})
+    if present is not None:
+        variables[f"share_present_{period}"] = ((dim,), present, {
+            "long_name": f"share of the {dim}'s records present (records over the records "
+                         "the full period has at this interval); below 1 where the record "
+                         f"begins or ends within the {dim}, whose sums cover only the records "
+                         "present", "units": "1"})
+    if "ustar_threshold" in table.columns:
+        variables[f"ustar_threshold_{period}"] = (
+            (dim,), table["ustar_threshold"].to_numpy(dtype=float),
+            {"long_name": "u* threshold applied in the year (the largest where a budget year "
+                          "spans two calendar years' thresholds)", "units": "m s-1"})
+    return (dim, middle, {"standard_name": "time", "long_name": f"middle of the {text_of_cell}"
+                          ", UTC", "bounds": f"{dim}_bounds"})
 
 
 def _computed_by(directory) -> str | None:
@@ -547,7 +688,14 @@ def written_by_fluxpart(path) -> bool:
 
 
 def command_export(args) -> int:
-    """``fluxpart export DIR --netcdf FILE``: write the folder's series as CF NetCDF."""
-    path = write_netcdf(args.directory, args.netcdf)
-    print(f"wrote {path} (CF-1.10 NetCDF: records and days, carbon fluxes in kg m-2 s-1)")
+    """``fluxpart export DIR [--netcdf FILE] [--csv FOLDER]``: write the folder's series as
+    CF NetCDF and/or its tables as CSV with CSVW metadata (:mod:`fluxpart.export_csv`)."""
+    if getattr(args, "netcdf", None) is not None:
+        path = write_netcdf(args.directory, args.netcdf)
+        print(f"wrote {path} (CF-1.10 NetCDF: records, days, months and years, carbon fluxes "
+              "in kg m-2 s-1 and sums in g m-2)")
+    if getattr(args, "csv", None) is not None:
+        from .export_csv import command_csv
+
+        command_csv(args.directory, args.csv)
     return 0

@@ -97,7 +97,8 @@ class Result:
                 + (f"<ul>{notes}</ul>" if notes else ""))
 
     def to_xarray(self):
-        """Return the record (30 or 60 min) and daily series as a CF-1.10 :class:`xarray.Dataset`.
+        """Return the record (30 or 60 min), daily, monthly and annual series as a CF-1.10
+        :class:`xarray.Dataset`.
 
         Needs the ``netcdf`` extra; see :func:`fluxpart.export.to_xarray`.
         """

@@ -45,13 +45,15 @@ def test_manifest_and_pipeline_do_not_import_each_other():
 
 
 def test_writers_know_no_orchestrator_and_no_method():
-    """store, resultdir, manifest, export and result write and read result folders; they
-    import no orchestrator (pipeline, batch, the commands) and no method module."""
-    for name in ("store.py", "resultdir.py", "manifest.py", "export.py", "result.py"):
+    """store, resultdir, manifest, export, export_csv and result write and read result
+    folders; they import no orchestrator (pipeline, batch, the commands) and no method
+    module."""
+    for name in ("store.py", "resultdir.py", "manifest.py", "export.py", "export_csv.py",
+                 "result.py"):
         imported = _relative_imports(name)
         assert not imported & (METHOD_MODULES | ORCHESTRATORS), (name, imported)
     loaded = _loaded_by("import fluxpart.store, fluxpart.resultdir, fluxpart.manifest, "
-                        "fluxpart.export, fluxpart.result")
+                        "fluxpart.export, fluxpart.export_csv, fluxpart.result")
     assert not loaded & (METHOD_MODULES | ORCHESTRATORS), loaded
 
 

@@ -400,3 +400,118 @@ def test_record_random_error_says_what_it_is_for_filled_records(exported):
     assert np.all(sigma[averaged] >= spread[averaged] * (1 - 1e-9))
     measured = series["nee_fill_quality"].astype(str).to_numpy() == "measured"
     assert np.isnan(spread[measured]).all() and np.isfinite(sigma[measured]).all()
+
+
+def test_months_and_years_carry_the_budget_tables_with_their_intervals(exported, written_demo):
+    """Round modeller22: the NetCDF carried records and days only. Now ``month`` and
+    ``year`` axes carry the monthly and annual sums, their 1-sigma and the annual 95 %
+    interval; each value equals the Parquet table read with pyarrow (an outside reader),
+    and the bounds are the local periods moved to UTC (CF-1.10 section 7.1)."""
+    import pyarrow.parquet as pq
+
+    _, dataset = exported
+    result, folder = written_demo
+    monthly = pq.read_table(folder / "monthly.parquet").to_pandas()
+    annual = pq.read_table(folder / "annual.parquet").to_pandas()
+    offset = pd.Timedelta(hours=result.site.utc_offset)
+    assert dataset.sizes["month"] == len(monthly) and dataset.sizes["year"] == len(annual)
+    for name in ("nee", "gpp_nighttime", "gpp_daytime", "reco_nighttime", "reco_daytime"):
+        np.testing.assert_array_equal(dataset[f"{name}_monthly_sum"].to_numpy(),
+                                      monthly[name].to_numpy(dtype=float))
+        np.testing.assert_array_equal(dataset[f"{name}_monthly_sum_sigma"].to_numpy(),
+                                      monthly[f"{name}_sigma"].to_numpy(dtype=float))
+        np.testing.assert_array_equal(dataset[f"{name}_annual_sum"].to_numpy(),
+                                      annual[name].to_numpy(dtype=float))
+        np.testing.assert_array_equal(dataset[f"{name}_annual_sum_sigma"].to_numpy(),
+                                      annual[f"{name}_uncertainty_total"].to_numpy(dtype=float))
+        for end in ("low", "high"):
+            np.testing.assert_array_equal(
+                dataset[f"{name}_annual_sum_ci95_{end}"].to_numpy(),
+                annual[f"{name}_ci95_{end}"].to_numpy(dtype=float))
+        links = dataset[f"{name}_annual_sum"].attrs["ancillary_variables"].split()
+        assert {f"{name}_annual_sum_ci95_low", f"{name}_annual_sum_ci95_high",
+                f"{name}_annual_sum_sigma", "share_present_annual"} <= set(links)
+        assert all(link in dataset.variables for link in links)
+        assert dataset[f"{name}_monthly_sum"].attrs["cell_methods"] == \
+            "month: sum (comment: over the records present)"
+        assert dataset[f"{name}_annual_sum"].attrs["cell_methods"] == \
+            "year: sum (comment: over the records present)"
+        # the interval brackets the sum (a fact of any 95 % interval around its estimate)
+        assert (dataset[f"{name}_annual_sum_ci95_low"] < dataset[f"{name}_annual_sum"]).all()
+        assert (dataset[f"{name}_annual_sum_ci95_high"] > dataset[f"{name}_annual_sum"]).all()
+    np.testing.assert_array_equal(dataset["ustar_threshold_annual"].to_numpy(),
+                                  annual["ustar_threshold"].to_numpy(dtype=float))
+    starts = pd.DatetimeIndex(monthly["month"]) - offset
+    assert (pd.DatetimeIndex(dataset["month_bounds"].values[:, 0]) == starts).all()
+    assert pd.Timestamp(dataset["month_bounds"].values[1, 0]) == \
+        pd.Timestamp(dataset["month_bounds"].values[0, 1])
+    assert pd.Timestamp(dataset["year_bounds"].values[0, 0]) == \
+        pd.Timestamp(annual["period_start"].iloc[0]) - offset
+    assert pd.Timestamp(dataset["year_bounds"].values[0, 1]) == \
+        pd.Timestamp(annual["period_end"].iloc[0]) - offset
+    for axis in ("month", "year"):
+        assert dataset[axis].attrs["bounds"] == f"{axis}_bounds"
+        middle = dataset[axis].values
+        assert ((dataset[f"{axis}_bounds"].values[:, 0] < middle)
+                & (middle < dataset[f"{axis}_bounds"].values[:, 1])).all()
+
+
+def test_month_and_year_variables_have_udunits_units_and_valid_cell_methods(exported):
+    """Every month/year variable's units parse with UDUNITS-2 (cf_units) and a sum in g m-2
+    converts to 1e-3 kg m-2; each cell_methods names a dimension of its variable (CF-1.10
+    section 7.3: "name: method", name a dimension or standard name)."""
+    _, dataset = exported
+    periodic = [name for name, variable in dataset.data_vars.items()
+                if set(variable.dims) & {"month", "year"}]
+    assert len(periodic) > 40
+    for name in periodic:
+        unit = dataset[name].attrs.get("units")
+        if "bounds" in name:
+            continue
+        assert unit is not None and not cf_units.Unit(unit).is_unknown(), (name, unit)
+    assert cf_units.Unit(dataset["nee_annual_sum"].attrs["units"]).convert(
+        1.0, cf_units.Unit("kg m-2")) == pytest.approx(1e-3)
+    for name, variable in dataset.data_vars.items():
+        method = variable.attrs.get("cell_methods")
+        if method:
+            assert method.split(":")[0] in variable.dims, (name, method)
+
+
+def test_monthly_sums_add_to_the_annual_budget_and_means_give_the_sums(exported, written_demo):
+    """Accounting identity on the demo's complete calendar year: the twelve monthly sums add
+    to the annual sum; a monthly mean flux [kg m-2 s-1] times the seconds of the month's
+    records gives the monthly sum back [g m-2]."""
+    _, dataset = exported
+    result, _ = written_demo
+    for name in ("nee", "gpp_daytime", "reco_nighttime"):
+        np.testing.assert_allclose(float(dataset[f"{name}_monthly_sum"].sum()),
+                                   float(dataset[f"{name}_annual_sum"][0]), rtol=1e-9)
+        seconds = result.monthly["records"].to_numpy(dtype=float) * 1800.0
+        np.testing.assert_allclose(dataset[f"{name}_monthly_mean"].to_numpy() * seconds * 1e3,
+                                   dataset[f"{name}_monthly_sum"].to_numpy(), rtol=1e-12)
+    assert (dataset["share_present_monthly"] == 1.0).all()
+
+
+def test_a_budget_year_from_july_has_its_own_bounds():
+    """Known truth on an invented annual table: a budget year starting 1 July at a site of
+    UTC-5 spans 2021-07-01T05:00 to 2022-07-01T05:00 UTC; its mean flux is the sum over the
+    seconds of its records (17,520 half-hours, 365 days), kg = g x 1e-3."""
+    from fluxpart.export import _period_variables
+
+    annual = pd.DataFrame({"period_start": [pd.Timestamp("2021-07-01")],
+                           "period_end": [pd.Timestamp("2022-07-01")],
+                           "nee": [-100.0], "records": [17520], "records_expected": [17520],
+                           "nee_uncertainty_total": [5.0], "nee_ci95_low": [-109.8],
+                           "nee_ci95_high": [-90.2]},
+                          index=pd.Index([2021], name="year"))
+    variables = {}
+    dim, middle, attrs = _period_variables(variables, annual, "year", 30,
+                                           pd.Timedelta(hours=-5))
+    bounds = variables["year_bounds"][1]
+    assert pd.Timestamp(bounds[0, 0]) == pd.Timestamp("2021-07-01 05:00")
+    assert pd.Timestamp(bounds[0, 1]) == pd.Timestamp("2022-07-01 05:00")
+    # the middle: 182.5 days after the start (153 days to 1 December, then 29.5)
+    assert pd.Timestamp(middle[0]) == pd.Timestamp("2021-12-30 17:00")
+    assert variables["nee_annual_mean"][1][0] == pytest.approx(-100e-3 / (365 * 86400.0))
+    assert variables["nee_annual_sum_ci95_low"][1][0] == -109.8
+    assert variables["share_present_annual"][1][0] == 1.0

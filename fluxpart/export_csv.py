@@ -1,0 +1,415 @@
+"""Plain CSV export of a result with its units: ``fluxpart export DIR --csv FOLDER``.
+
+``pandas.read_parquet``, R's ``read.csv`` and a spreadsheet read a table but not the
+units fluxpart stores in the Parquet metadata. :func:`write_csv` writes every table of a
+result (``timeseries``, ``daily``, ``monthly``, ``annual``, ``ustar``, ``audit``,
+``screening`` and the ``parameters_*`` tables) as ``<table>.csv`` in one folder, with one
+``csv-metadata.json`` describing them all in the W3C "CSV on the Web" (CSVW) metadata
+vocabulary: a table group whose ``tables`` list gives, for every column, its ``name``,
+``datatype``, UDUNITS-2 unit and description.
+
+The CSV files (RFC 4180 shape):
+
+- UTF-8 (no byte-order mark), comma separated, ``.`` as decimal mark, one header row of
+  the column names, lines ended by ``\\n``, a field quoted with ``"`` only where it holds
+  a comma, a quote or a line break;
+- the index of a table (``time``, ``date``, ``month``, ``year``, ...) is its first column,
+  as in the Parquet file;
+- numbers as the shortest text that reads back to the same double (Python ``repr``:
+  ``0.1``, ``1e-05``), so a reader gets the Parquet value bit for bit; ``INF`` / ``-INF``
+  (XML Schema) for infinities; booleans ``true`` / ``false``;
+- a missing value (NaN, NaT, no label) is an empty field;
+- time stamps as ISO 8601 with the UTC offset of the site's local standard time stated,
+  ``2021-01-01T00:30:00+01:00``: the start of the interval in local standard time (no
+  daylight saving), as in every table of fluxpart (:data:`fluxpart.schema.TIME_CONVENTION`).
+
+``csv-metadata.json`` (JSON-LD context ``http://www.w3.org/ns/csvw``; the file name is the
+one the CSVW standard's site-wide discovery looks for beside the CSV files):
+
+- per column: ``name`` and ``titles`` (the header), ``datatype`` (``double``,
+  ``integer``, ``boolean``, ``string``, or ``{"base": "datetime", "format":
+  "yyyy-MM-ddTHH:mm:ssxxx"}``), ``schema:unitText`` (the unit, a UDUNITS-2 string, the
+  same as the Parquet field's; left out where a column has none: names, labels, times)
+  and ``dc:description`` (the Parquet field's description). ``schema:unitText`` is the
+  schema.org property for "a unit of measurement given as text"; the substance (carbon,
+  CO2) is named in the description, as in the Parquet metadata (UDUNITS-2 reads
+  ``g C m-2`` as gram-coulomb);
+- per table: ``url`` (the CSV file), ``dc:title``, ``tableSchema`` (``columns`` and the
+  ``primaryKey`` where the table has an index);
+- for the group: ``dc:title``, ``dc:source`` (the release that computed the result),
+  ``dc:description`` (the time convention), ``rdfs:comment`` (the caution) and
+  ``schema:additionalProperty``: the site facts and time convention as
+  ``schema:PropertyValue`` items (``schema:name``, ``schema:value``, ``schema:unitText``):
+  ``site_name``, ``site_latitude`` [degrees_north], ``site_longitude`` [degrees_east],
+  ``site_utc_offset`` [h], ``utc_offset_iso8601`` (``+01:00``), ``interval_minutes``
+  [min], ``time_convention``, ``time_stamp`` (``start of interval``),
+  ``time_zone`` (``local standard time, no daylight saving``).
+
+The folder is written under a temporary name beside the target and renamed into place:
+it is complete or absent. Same result, same bytes (no time of writing is recorded).
+
+References
+----------
+Tennison, J., Kellogg, G. and Herman, I. (eds.) (2015). Model for Tabular Data and Metadata
+on the Web; Metadata Vocabulary for Tabular Data. W3C Recommendations, 17 December 2015
+(sections on table groups, columns, datatypes with date/time format patterns, common
+properties, and locating metadata: ``csv-metadata.json``).
+Shafranovich, Y. (2005). RFC 4180: Common Format and MIME Type for Comma-Separated Values.
+ISO 8601-1:2019, date and time representations (UTC offset ``±hh:mm``).
+Unidata (2024). UDUNITS-2 units database and grammar.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import os
+import re
+import tempfile
+import time
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from .errors import OutputError
+from .schema import TIME_CONVENTION, units_for_table
+from .store import _stored_index, file_mode, folder_mode, remove_stale, set_mode
+
+__all__ = ["DESCRIPTION_PROPERTY", "METADATA_NAME", "UNIT_PROPERTY", "check_target",
+           "command_csv", "csv_tables", "offset_text", "write_csv"]
+
+#: Name of the CSVW metadata file (the standard's default for a folder of CSV files).
+METADATA_NAME = "csv-metadata.json"
+#: CSVW common property carrying a column's UDUNITS-2 unit (schema.org ``unitText``).
+UNIT_PROPERTY = "schema:unitText"
+#: CSVW common property carrying a column's description (Dublin Core ``description``).
+DESCRIPTION_PROPERTY = "dc:description"
+#: The date-time pattern of every time stamp (CSVW/Unicode LDML syntax; ``xxx`` = ``+hh:mm``).
+DATETIME_FORMAT = "yyyy-MM-ddTHH:mm:ssxxx"
+_DIALECT = {"encoding": "utf-8", "delimiter": ",", "quoteChar": "\"", "doubleQuote": True,
+            "header": True, "headerRowCount": 1, "lineTerminators": ["\n"],
+            "skipInitialSpace": False, "trim": False}
+_CAUTION = ("A tower budget is one line of evidence for carbon-credit quantification, not a "
+            "certified credit; the applicable crediting methodology and accredited verification "
+            "decide how it may be used.")
+#: Tables first in the metadata file, in this order; the others follow by name.
+_FIRST = ("timeseries", "daily", "monthly", "annual", "ustar", "audit", "screening")
+
+
+def offset_text(hours: float) -> str:
+    """ISO 8601 UTC offset ``±hh:mm`` of `hours` (rounded to the minute).
+
+    Parameters
+    ----------
+    hours : float
+        Offset of the local standard time from UTC [h], e.g. 1.0, -5.0, 5.75.
+
+    Returns
+    -------
+    str
+        ``"+01:00"``, ``"-05:00"``, ``"+05:45"``; ``"+00:00"`` for UTC.
+
+    References
+    ----------
+    ISO 8601-1:2019, section 4.3.13 (m): time shift from UTC as ``±hh:mm``.
+    """
+    minutes = int(round(float(hours) * 60.0))
+    sign = "-" if minutes < 0 else "+"
+    return f"{sign}{abs(minutes) // 60:02d}:{abs(minutes) % 60:02d}"
+
+
+def _float_text(values: np.ndarray) -> list[str]:
+    out = []
+    for value in values.tolist():
+        if value != value:                      # NaN
+            out.append("")
+        elif math.isinf(value):
+            out.append("INF" if value > 0 else "-INF")
+        else:
+            out.append(repr(value))
+    return out
+
+
+def _column(values: pd.Series, offset: str) -> tuple[list[str], object]:
+    """Text of every value of one column and its CSVW datatype."""
+    dtype = values.dtype
+    if isinstance(dtype, pd.CategoricalDtype) or pd.api.types.is_string_dtype(dtype) \
+            or pd.api.types.is_object_dtype(dtype):
+        return [("" if v is None or (isinstance(v, float) and v != v) or v is pd.NA
+                 else str(v)) for v in values.astype(object).tolist()], "string"
+    if pd.api.types.is_bool_dtype(dtype):
+        mask = values.isna().to_numpy()
+        return ["" if missing else ("true" if value else "false")
+                for value, missing in zip(values.tolist(), mask, strict=True)], "boolean"
+    if pd.api.types.is_datetime64_any_dtype(dtype):
+        stamps = pd.DatetimeIndex(values)
+        if stamps.tz is not None:               # never written by fluxpart; kept as given
+            text = [("" if s is pd.NaT else s.isoformat()) for s in stamps]
+        else:
+            text = [("" if s != s else f"{s}{offset}")
+                    for s in stamps.strftime("%Y-%m-%dT%H:%M:%S").tolist()]
+        return text, {"base": "datetime", "format": DATETIME_FORMAT}
+    if pd.api.types.is_integer_dtype(dtype):
+        mask = values.isna().to_numpy()
+        return ["" if missing else str(int(value))
+                for value, missing in zip(values.tolist(), mask, strict=True)], "integer"
+    if pd.api.types.is_float_dtype(dtype):
+        return _float_text(values.to_numpy(dtype=float, na_value=np.nan)), "double"
+    return [("" if v is None else str(v)) for v in values.astype(object).tolist()], "string"
+
+
+def _as_columns(frame: pd.DataFrame) -> tuple[list[str], list[pd.Series]]:
+    """Column names and values as the Parquet file stores them: the index first."""
+    names = [str(c) for c in frame.columns]
+    series = [frame[c] for c in frame.columns]
+    index_name = _stored_index(frame)
+    if index_name is not None and index_name not in names:
+        names.insert(0, index_name)
+        series.insert(0, frame.index.to_series(index=pd.RangeIndex(len(frame))))
+    return names, series
+
+
+def _table_csv(frame: pd.DataFrame, offset: str) -> tuple[bytes, list[str], list]:
+    names, series = _as_columns(frame)
+    texts, types = [], []
+    for values in series:
+        text, datatype = _column(values.reset_index(drop=True), offset)
+        texts.append(text)
+        types.append(datatype)
+    buffer = io.StringIO(newline="")
+    writer = csv.writer(buffer, delimiter=",", quotechar="\"", doublequote=True,
+                        quoting=csv.QUOTE_MINIMAL, lineterminator="\n")
+    writer.writerow(names)
+    writer.writerows(zip(*texts, strict=True))
+    return buffer.getvalue().encode("utf-8"), names, types
+
+
+def _as_stored(name: str, frame: pd.DataFrame, stored: bool) -> tuple[pd.DataFrame, dict]:
+    """`frame` as a result folder stores it, and column -> (unit, description).
+
+    `stored`: the table was read from a result folder (:func:`fluxpart.store.read_table`),
+    whose ``attrs`` hold the unit and description of every stored column as the file
+    has them: those are used, so an older result keeps its own. Otherwise (a result in
+    memory) the table gets the index name and the units a result folder would store
+    (:func:`fluxpart.resultdir._write_tables`), so both routes give the same bytes.
+    """
+    if stored:
+        units = frame.attrs.get("units") or {}
+        texts = frame.attrs.get("descriptions") or {}
+        return frame, {column: (unit, texts.get(column, "")) for column, unit in units.items()}
+    from .resultdir import _unit_table
+
+    frame = frame if frame.index.name is not None else frame.rename_axis("row")
+    columns = [frame.index.name, *map(str, frame.columns)]
+    return frame, units_for_table(_unit_table(name), columns)
+
+
+def _table_metadata(name: str, frame: pd.DataFrame, names: list[str], types: list,
+                    described: dict) -> dict:
+    columns = []
+    for column, datatype in zip(names, types, strict=True):
+        unit, description = described.get(column, ("", ""))
+        entry = {"name": column, "titles": column, "datatype": datatype}
+        if unit:
+            entry[UNIT_PROPERTY] = unit
+        if description:
+            entry[DESCRIPTION_PROPERTY] = description
+        columns.append(entry)
+    schema = {"columns": columns}
+    index_name = _stored_index(frame)
+    if index_name is not None and frame.index.is_unique:
+        schema["primaryKey"] = index_name
+    return {"url": f"{name}.csv", "dc:title": name, "tableSchema": schema}
+
+
+def _ordered(tables: dict) -> list[str]:
+    return [n for n in _FIRST if n in tables] + sorted(n for n in tables if n not in _FIRST)
+
+
+def csv_tables(result, source: str | None = None, *, stored: bool = False) -> dict[str, bytes]:
+    """The files of the CSV export of `result`: file name -> bytes.
+
+    Parameters
+    ----------
+    result : fluxpart.result.Result
+        A result from :func:`fluxpart.process` or :func:`fluxpart.load`.
+    source : str, optional
+        The fluxpart release that computed the result (default: this one).
+    stored : bool, default False
+        True: `result` was loaded from a result folder and each column's unit and
+        description are taken from its tables' ``attrs`` (the Parquet metadata, as an
+        older release wrote it). False: they are those a result folder of this release
+        stores (:func:`fluxpart.schema.units_for_table`), the index named as it does;
+        for a result of this release both give the same bytes.
+
+    Returns
+    -------
+    dict of str to bytes
+        ``<table>.csv`` for every table of :meth:`~fluxpart.result.Result.tables` and
+        ``csv-metadata.json`` (CSVW) describing them.
+
+    References
+    ----------
+    W3C (2015). Metadata Vocabulary for Tabular Data (CSVW); RFC 4180; ISO 8601.
+    """
+    from . import __version__
+
+    site = result.site
+    offset = offset_text(site.utc_offset)
+    tables = result.tables()
+    files, described = {}, []
+    interval = None
+    for name in _ordered(tables):
+        frame, units = _as_stored(name, tables[name], stored)
+        data, names, types = _table_csv(frame, offset)
+        files[f"{name}.csv"] = data
+        described.append(_table_metadata(name, frame, names, types, units))
+        interval = interval if interval is not None else frame.attrs.get("interval_minutes")
+    if interval is None and len(result.timeseries.index) > 1:
+        steps = np.diff(result.timeseries.index.to_numpy().astype("datetime64[s]")
+                        .astype(np.int64))
+        interval = int(np.median(steps) // 60)
+    convention = result.timeseries.attrs.get("time_convention") or TIME_CONVENTION
+
+    def fact(name, value, unit=None):
+        item = {"@type": "schema:PropertyValue", "schema:name": name, "schema:value": value}
+        if unit:
+            item["schema:unitText"] = unit
+        return item
+
+    metadata = {
+        "@context": ["http://www.w3.org/ns/csvw", {"@language": "en"}],
+        "dc:title": f"Eddy-covariance carbon fluxes of {site.name}: gap-filled NEE, its "
+                    "partitioning into GPP and Reco, and the budgets",
+        "dc:source": f"fluxpart {source or __version__}",
+        "dc:description": f"Time stamps: {convention}. Every time stamp is written with the "
+                          f"UTC offset of the site's local standard time ({offset}).",
+        "rdfs:comment": _CAUTION,
+        "schema:additionalProperty": [
+            fact("site_name", str(site.name)),
+            fact("site_latitude", float(site.latitude), "degrees_north"),
+            fact("site_longitude", float(site.longitude), "degrees_east"),
+            fact("site_utc_offset", float(site.utc_offset), "h"),
+            fact("utc_offset_iso8601", offset),
+            fact("interval_minutes", None if interval is None else int(interval), "min"),
+            fact("time_stamp", "start of interval"),
+            fact("time_zone", "local standard time, no daylight saving"),
+            fact("time_convention", convention),
+        ],
+        "dialect": _DIALECT,
+        "tables": described,
+    }
+    text = json.dumps(metadata, indent=1, ensure_ascii=False, allow_nan=False)
+    files[METADATA_NAME] = (text + "\n").encode("utf-8")
+    return files
+
+
+def check_target(target: Path) -> None:
+    """Refuse a `target` for the CSV folder that is a file or a folder that is not empty.
+
+    Raises
+    ------
+    OutputError
+        Naming the option and the path.
+    """
+    if target.is_symlink() or (target.exists() and not target.is_dir()):
+        raise OutputError(f"--csv {str(target)!r} exists and is not a folder: give a new "
+                          "folder for the CSV files")
+    if target.is_dir():
+        try:
+            empty = not any(target.iterdir())
+        except OSError as error:
+            raise OutputError(f"--csv {str(target)!r} cannot be read ({error.strerror or error})"
+                              "; choose another folder") from None
+        if not empty:
+            raise OutputError(f"--csv {str(target)!r} is a folder that is not empty; it is "
+                              "not replaced: give a new or empty folder, or delete it first")
+
+
+def write_csv(result, folder) -> Path:
+    """Write the CSV export of `result` (:func:`csv_tables`) to the new folder `folder`.
+
+    Parameters
+    ----------
+    result : fluxpart.result.Result or path-like
+        A result, or a result folder (loaded and checked against its manifest first).
+    folder : path-like
+        The folder to create; it must not exist, or be empty.
+
+    Returns
+    -------
+    pathlib.Path
+        The folder written.
+
+    Raises
+    ------
+    OutputError
+        If `folder` is a file, a non-empty folder, or cannot be written (no permission,
+        a full disk). The folder is written under a temporary name beside it and renamed
+        into place: nothing is left half-written, and a failure leaves no folder.
+    """
+    target = Path(folder)
+    check_target(target)
+    source, stored = None, False
+    if isinstance(result, (str, os.PathLike)):
+        from .export import _computed_by
+        from .result import load
+
+        directory = result
+        result = load(directory)
+        source, stored = _computed_by(directory), True
+    started = time.time()
+    files = csv_tables(result, source, stored=stored)
+    parent = target.absolute().parent
+    for ancestor in (parent, *parent.parents):
+        if ancestor.exists() or ancestor.is_symlink():
+            if not ancestor.is_dir():
+                raise OutputError(f"--csv {str(target)!r}: {str(ancestor)!r} is a file, not a "
+                                  "folder; choose a place in a folder")
+            break
+    try:
+        parent.mkdir(parents=True, exist_ok=True)
+        remove_stale(parent, re.compile(rf"^\.{re.escape(target.name)}\.[a-z0-9_]{{8}}\.tmp$"),
+                     started)
+        staging = Path(tempfile.mkdtemp(prefix=f".{target.name}.", suffix=".tmp", dir=parent))
+    except OSError as error:
+        raise OutputError(f"--csv {str(target)!r}: cannot write in {str(parent)!r} "
+                          f"({error.strerror or error}); choose a writable place") from None
+    try:
+        for name, data in files.items():
+            path = staging / name
+            with open(path, "wb") as handle:
+                handle.write(data)
+                handle.flush()
+                os.fsync(handle.fileno())
+            set_mode(path, file_mode())
+        set_mode(staging, folder_mode())
+        check_target(target)                    # made meanwhile by another writer
+        if target.is_dir():
+            target.rmdir()                       # empty: replaced by the rename
+        os.rename(staging, target)
+    except OSError as error:
+        _remove(staging)
+        reason = os.strerror(error.errno) if error.errno else str(error)
+        raise OutputError(f"--csv {str(target)!r}: writing failed ({reason}); nothing was "
+                          "written: free space, or choose another place") from None
+    except BaseException:
+        _remove(staging)
+        raise
+    return target
+
+
+def _remove(staging: Path) -> None:
+    import shutil
+
+    shutil.rmtree(staging, ignore_errors=True)
+
+
+def command_csv(directory, folder) -> Path:
+    """The CSV part of ``fluxpart export DIR --csv FOLDER``; prints what was written."""
+    path = write_csv(directory, folder)
+    print(f"wrote {path}/ (CSV tables with {METADATA_NAME}: W3C CSVW, units as UDUNITS-2)")
+    return path
