@@ -157,6 +157,21 @@ def _flag(values, name: str, long_name: str):
                    "flag_meanings": meanings}
 
 
+def _seconds_present(table, interval, fallback_seconds):
+    """Seconds of records present in each period (NaN where none; `fallback_seconds` where
+    the table has no ``records``) and the share of the period's records present (None
+    without ``records_expected``)."""
+    seconds = (table["records"].to_numpy(dtype=float) * interval * 60.0
+               if "records" in table.columns else fallback_seconds)
+    seconds = np.where(seconds > 0, seconds, np.nan)
+    present = None
+    if {"records", "records_expected"} <= set(table.columns):
+        expected = table["records_expected"].to_numpy(dtype=float)
+        present = table["records"].to_numpy(dtype=float) / np.where(expected > 0, expected,
+                                                                     np.nan)
+    return seconds, present
+
+
 def _bounds(starts: pd.DatetimeIndex, length: pd.Timedelta, offset: pd.Timedelta):
     """UTC cell midpoints and (n, 2) bounds of cells starting at local `starts`."""
     start_utc = (starts - offset).to_numpy()
@@ -265,14 +280,7 @@ def to_xarray(result):
     daily = result.daily
     day, day_bounds = _bounds(pd.DatetimeIndex(daily.index), pd.Timedelta(days=1), offset)
     variables["day_bounds"] = (("day", "nv"), day_bounds)
-    seconds = daily["records"].to_numpy(dtype=float) * interval * 60.0 \
-        if "records" in daily.columns else np.full(len(daily), 86400.0)
-    seconds = np.where(seconds > 0, seconds, np.nan)
-    present = None
-    if {"records", "records_expected"} <= set(daily.columns):
-        expected = daily["records_expected"].to_numpy(dtype=float)
-        present = daily["records"].to_numpy(dtype=float) / np.where(expected > 0, expected,
-                                                                     np.nan)
+    seconds, present = _seconds_present(daily, interval, np.full(len(daily), 86400.0))
     for name in _FLUXES:
         if name not in daily.columns:
             continue
@@ -426,15 +434,8 @@ def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: 
     end_utc = (ends - offset).to_numpy()
     middle = start_utc + (end_utc - start_utc) / 2
     variables[f"{dim}_bounds"] = ((dim, "nv"), np.stack([start_utc, end_utc], axis=1))
-    seconds = (table["records"].to_numpy(dtype=float) * interval * 60.0
-               if "records" in table.columns else (end_utc - start_utc).astype(
-                   "timedelta64[s]").astype(float))
-    seconds = np.where(seconds > 0, seconds, np.nan)
-    present = None
-    if {"records", "records_expected"} <= set(table.columns):
-        expected = table["records_expected"].to_numpy(dtype=float)
-        present = table["records"].to_numpy(dtype=float) / np.where(expected > 0, expected,
-                                                                     np.nan)
+    seconds, present = _seconds_present(
+        table, interval, (end_utc - start_utc).astype("timedelta64[s]").astype(float))
     method = f"{dim}: sum (comment: over the records present)"
     for name, (_, text) in _FLUXES.items():
         if name not in table.columns:
