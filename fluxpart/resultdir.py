@@ -61,6 +61,7 @@ from .manifest import (
     build_manifest,
     library_versions,
     manifest_bytes,
+    manifest_text,
     name_in_other_case,
     read_manifest,
     seal_intact,
@@ -421,7 +422,7 @@ def recorded_site_name(directory) -> str | None:
     damaged manifest does not protect its folder).
     """
     try:
-        manifest = json.loads((Path(directory) / MANIFEST_FILE).read_text(encoding="utf-8-sig"))
+        manifest = json.loads(manifest_text((Path(directory) / MANIFEST_FILE).read_bytes()))
     except (OSError, UnicodeDecodeError, ValueError):
         return None
     site = manifest.get("site") if isinstance(manifest, dict) else None
@@ -564,7 +565,7 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
         return []
     if marker == MANIFEST_FILE:
         try:
-            manifest = json.loads((directory / MANIFEST_FILE).read_text(encoding="utf-8-sig"))
+            manifest = json.loads(manifest_text((directory / MANIFEST_FILE).read_bytes()))
             tables = manifest.get("tables") if isinstance(manifest, dict) else None
             listed = {entry.get("file") for entry in tables.values() if isinstance(entry, dict)}
             listed |= {MANIFEST_FILE, RUN_LOG, REPORT_FOLDER}

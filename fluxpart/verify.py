@@ -944,7 +944,7 @@ def _in_recorded_order(wanted: list, given: list, config_sha=None) -> list:
 
 
 def _input_files(directory: Path, recorded: dict, given, config_path: Path | None,
-                 config_sha=None):
+                 config_sha, scratch: Path, notes: list):
     """Return (input path or list of paths, difference or None).
 
     One file: the file given with ``--input``, else the one at the recorded path
@@ -952,7 +952,9 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
     have the recorded SHA-256. Several files (``recorded["files"]``): each is
     looked for likewise, ``--input`` given once per file in any order (matched by
     SHA-256); each must have its recorded SHA-256. A file given with ``--input``
-    that is the recorded site config (`config_sha`) is refused as swapped options.
+    that is the recorded site config (`config_sha`) is refused as swapped options. A file
+    whose only difference is its line endings (CR LF for LF or the reverse) is restored
+    to the recorded bytes in `scratch` and used, with a note (:func:`_restored_line_endings`).
     """
     parts = recorded.get("files") if isinstance(recorded.get("files"), list) else None
     wanted = parts if parts else [recorded]
@@ -989,32 +991,41 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
                                      "give its new location with --input")
         actual = file_sha256(path)
         if actual != sha:
-            return None, Difference("input", "input", column="input file", row=str(path),
-                                    stored=str(sha), recomputed=actual,
-                                    cause=_line_ending_cause(path, sha))
+            restored = _restored_line_endings(path, sha, scratch, number)
+            if restored is None:
+                return None, Difference("input", "input", column="input file", row=str(path),
+                                        stored=str(sha), recomputed=actual)
+            notes.append(f"input file: {str(path)!r} differs from the recorded file only "
+                         "in its line endings (a text conversion on the way: git "
+                         "core.autocrlf, unzip -a, an editor); converted back, its bytes "
+                         f"have the recorded SHA-256 {sha}, and those bytes were rerun")
+            path = restored
         found.append(path)
     return (found if parts else found[0]), None
 
 
-def _line_ending_cause(path: Path, sha) -> str:
-    """Why a file that is not the recorded one differs, where its lines ending in CR LF
-    (Windows) instead of LF, or the reverse, is the whole difference: a text conversion
-    on the way (git's core.autocrlf, ``unzip -a``, an editor). Empty otherwise."""
+def _restored_line_endings(path: Path, sha, scratch: Path, number: int) -> Path | None:
+    """The recorded input file restored from `path` in `scratch`, or None.
+
+    Where the lines of `path` end in CR LF and those of the recorded file in LF, or the
+    reverse (git's core.autocrlf, ``unzip -a``, an editor), and the other convention
+    gives back the recorded SHA-256 exactly, the recorded bytes are known whole: a copy
+    of them is written under the same file name (its suffix chooses the reader) in a
+    folder of its own in `scratch` and returned. Any other difference gives None.
+    """
     try:
         data = path.read_bytes()
     except OSError:
-        return ""
+        return None
     unix = data.replace(b"\r\n", b"\n")
-    for converted, change in ((unix, "Windows line endings (CR LF) where the recorded file "
-                               "has LF"),
-                              (unix.replace(b"\n", b"\r\n"), "LF line endings where the "
-                               "recorded file has Windows line endings (CR LF)")):
+    for converted in (unix, unix.replace(b"\n", b"\r\n")):
         if converted != data and hashlib.sha256(converted).hexdigest() == sha:
-            return (f"its content is the recorded file's but with {change}: a text conversion "
-                    "on the way (git core.autocrlf, unzip -a, an editor) changed its bytes; "
-                    "give the file as it was received byte for byte (e.g. unzip without -a, "
-                    "a git checkout with core.autocrlf false)")
-    return ""
+            folder = scratch / f"restored-input-{number}"
+            folder.mkdir(parents=True, exist_ok=True)
+            target = folder / path.name
+            target.write_bytes(converted)
+            return target
+    return None
 
 
 def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch: Path,
@@ -1058,7 +1069,7 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
     if changed is not None:
         return "run", None, [changed]
     data_path, changed = _input_files(directory, recorded_input, input_path, locating,
-                                      provenance["site_config"].get("sha256"))
+                                      provenance["site_config"].get("sha256"), scratch, notes)
     if changed is not None:
         return "run", None, [changed]
     if provenance.get("settings") == "site config":
