@@ -61,6 +61,7 @@ verification.
 
 from __future__ import annotations
 
+import codecs
 import dataclasses
 import hashlib
 import json
@@ -953,8 +954,8 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
     looked for likewise, ``--input`` given once per file in any order (matched by
     SHA-256); each must have its recorded SHA-256. A file given with ``--input``
     that is the recorded site config (`config_sha`) is refused as swapped options. A file
-    whose only difference is its line endings (CR LF for LF or the reverse) is restored
-    to the recorded bytes in `scratch` and used, with a note (:func:`_restored_line_endings`).
+    holding the recorded text re-saved otherwise (line endings, encoding) is restored to
+    the recorded bytes in `scratch` and used, with a note (:func:`_restored_text`).
     """
     parts = recorded.get("files") if isinstance(recorded.get("files"), list) else None
     wanted = parts if parts else [recorded]
@@ -991,34 +992,69 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
                                      "give its new location with --input")
         actual = file_sha256(path)
         if actual != sha:
-            restored = _restored_line_endings(path, sha, scratch, number)
+            restored = _restored_text(path, sha, scratch, number)
             if restored is None:
                 return None, Difference("input", "input", column="input file", row=str(path),
                                         stored=str(sha), recomputed=actual)
-            notes.append(f"input file: {str(path)!r} differs from the recorded file only "
-                         "in its line endings (a text conversion on the way: git "
-                         "core.autocrlf, unzip -a, an editor); converted back, its bytes "
-                         f"have the recorded SHA-256 {sha}, and those bytes were rerun")
+            notes.append(f"input file: {str(path)!r} holds the recorded file's text re-saved "
+                         "otherwise (line endings, byte-order mark, encoding or final line "
+                         "break: git core.autocrlf, unzip -a, an editor); converted back, "
+                         f"its bytes have the recorded SHA-256 {sha}, and those bytes were "
+                         "rerun")
             path = restored
         found.append(path)
     return (found if parts else found[0]), None
 
 
-def _restored_line_endings(path: Path, sha, scratch: Path, number: int) -> Path | None:
+#: Text encodings an editor or a shell may re-save a text file in, told from its
+#: byte-order mark (the Unicode standard, section 23.8); without one, UTF-8 is tried.
+_MARKS = ((codecs.BOM_UTF32_LE, "utf-32"), (codecs.BOM_UTF32_BE, "utf-32"),
+          (codecs.BOM_UTF8, "utf-8-sig"), (codecs.BOM_UTF16_LE, "utf-16"),
+          (codecs.BOM_UTF16_BE, "utf-16"))
+
+
+def _text_variants(data: bytes):
+    """Yield (bytes, change) for the re-savings of `data` that keep its text.
+
+    A text file re-saved "with the same content" may get its line endings converted
+    (CR LF for LF or the reverse: git core.autocrlf, ``unzip -a``), a byte-order mark
+    added or dropped, another Unicode encoding (UTF-16 from Windows Notepad or
+    PowerShell 5.1), or a final line break added or dropped (most editors): each
+    variant undoes a combination of these, written as UTF-8. Nothing for bytes that
+    are not Unicode text.
+    """
+    encoding = next((name for mark, name in _MARKS if data.startswith(mark)), "utf-8")
+    try:
+        text = data.decode(encoding)
+    except UnicodeDecodeError:
+        return
+    unix = text.replace("\r\n", "\n")
+    bare = unix.rstrip("\n")
+    for body in dict.fromkeys((unix, bare, bare + "\n")):
+        for newline in ("\n", "\r\n"):
+            for mark in (b"", codecs.BOM_UTF8):
+                yield mark + body.replace("\n", newline).encode("utf-8")
+
+
+def _restored_text(path: Path, sha, scratch: Path, number: int) -> Path | None:
     """The recorded input file restored from `path` in `scratch`, or None.
 
-    Where the lines of `path` end in CR LF and those of the recorded file in LF, or the
-    reverse (git's core.autocrlf, ``unzip -a``, an editor), and the other convention
-    gives back the recorded SHA-256 exactly, the recorded bytes are known whole: a copy
-    of them is written under the same file name (its suffix chooses the reader) in a
-    folder of its own in `scratch` and returned. Any other difference gives None.
+    Where `path` holds the recorded file's text re-saved otherwise (line endings,
+    byte-order mark, Unicode encoding, final line break: :func:`_text_variants`) and one
+    variant gives back the recorded SHA-256 exactly, the recorded bytes are known whole:
+    a copy of them is written under the same file name (its suffix chooses the reader)
+    in a folder of its own in `scratch` and returned. Any other difference gives None.
+
+    References
+    ----------
+    NIST (2015). FIPS 180-4: Secure Hash Standard (SHA-256: equal digests stand for
+    equal bytes).
     """
     try:
         data = path.read_bytes()
     except OSError:
         return None
-    unix = data.replace(b"\r\n", b"\n")
-    for converted in (unix, unix.replace(b"\n", b"\r\n")):
+    for converted in _text_variants(data):
         if converted != data and hashlib.sha256(converted).hexdigest() == sha:
             folder = scratch / f"restored-input-{number}"
             folder.mkdir(parents=True, exist_ok=True)

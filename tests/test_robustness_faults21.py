@@ -66,3 +66,44 @@ def test_a_manifest_re_saved_in_a_legacy_code_page_is_named_as_such(copy, capsys
     assert main(["verify", str(copy / "out"), "--quiet"]) == 2
     line = _one_error_line(capsys)
     assert "manifest.json" in line and "not UTF-8" in line and "another encoding" in line
+
+
+@pytest.mark.parametrize("resave", [
+    pytest.param(lambda data: data.replace(b"\n", b"\r\n"), id="crlf"),
+    pytest.param(lambda data: b"\xef\xbb\xbf" + data, id="utf8-bom"),
+    pytest.param(lambda data: data.decode("utf-8").encode("utf-16"), id="utf16"),
+    pytest.param(lambda data: data + b"\n", id="final-newline-added"),
+    pytest.param(lambda data: data.rstrip(b"\n"), id="final-newline-dropped"),
+    pytest.param(lambda data: data.decode().replace("\n", "\r\n").encode("utf-16"),
+                 id="utf16-crlf"),
+])
+def test_an_input_re_saved_with_the_same_text_verifies(copy, capsys, resave):
+    """Known truth: the input's text re-saved by an editor or a conversion (line endings,
+    a byte-order mark, UTF-16, a final line break) is the recorded file once undone; the
+    undone bytes have the recorded SHA-256 (FIPS 180-4), so the rerun is on the recorded
+    bytes. verify said "it is not the input file the result was computed from" (exit 1)
+    of a genuine result; now bit-identical, the re-saving named in a note, the file left
+    as it was."""
+    tower = copy / "tower.csv"
+    changed = resave(tower.read_bytes())
+    tower.write_bytes(changed)
+    assert main(["verify", str(copy / "out")]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("bit-identical")
+    assert "note: input file:" in out and "re-saved otherwise" in out
+    assert tower.read_bytes() == changed
+
+
+def test_an_input_with_one_value_changed_is_still_refused(copy, capsys):
+    """A changed value is no re-saving: the input differs (exit 1), named, no rerun."""
+    tower = copy / "tower.csv"
+    lines = tower.read_text(encoding="utf-8").splitlines(keepends=True)
+    header = lines[0].rstrip("\n").split(",")
+    fields = lines[5].rstrip("\n").split(",")
+    column = next(i for i, name in enumerate(header) if i and fields[i] not in ("", "-9999"))
+    fields[column] = fields[column] + "1"
+    lines[5] = ",".join(fields) + "\n"
+    tower.write_bytes("".join(lines).replace("\n", "\r\n").encode("utf-8"))
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert "it is not the input file" in out and "re-saved" not in out

@@ -759,7 +759,7 @@ def test_an_input_with_converted_line_endings_is_restored_and_rerun(copy, capsys
     assert main(["verify", str(copy / "out")]) == 0
     out = capsys.readouterr().out
     assert out.startswith("bit-identical")
-    assert "note: input file:" in out and "only in its line endings" in out
+    assert "note: input file:" in out and "re-saved otherwise" in out
     assert tower.read_bytes() == original.replace(b"\n", b"\r\n")     # left as it was
     tower.write_bytes(original + b"\n")
     assert main(["verify", str(copy / "out")]) == 1
