@@ -107,3 +107,46 @@ def test_an_input_with_one_value_changed_is_still_refused(copy, capsys):
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
     assert "it is not the input file" in out and "re-saved" not in out
+
+
+@pytest.mark.parametrize("names", [
+    pytest.param((".DS_Store", "._manifest.json", "._annual.parquet"), id="mac-finder-fat"),
+    pytest.param(("Thumbs.db", "desktop.ini", "THUMBS.DB"), id="windows-explorer"),
+])
+def test_a_genuine_result_viewed_in_a_file_manager_verifies(copy, capsys, names):
+    """Known truth: macOS Finder writes ``.DS_Store``, and a Mac copying onto FAT, exFAT
+    or an SMB share an AppleDouble ``._NAME`` per file; Windows Explorer writes
+    ``Thumbs.db`` in a viewed folder of pictures and ``desktop.ini`` for folder settings
+    (m; common practice). None is read as a table, yet verify said "NOT reproduced"
+    (exit 1) of a genuine result so copied or viewed; now bit-identical with a note
+    naming each, and `run` replaces the folder (they cost nothing)."""
+    out = copy / "out"
+    for name in names:
+        if not (out / name).exists():
+            (out / name).write_bytes(b"\x00\x05\x16\x07")
+    assert main(["verify", str(out)]) == 0
+    printed = capsys.readouterr().out
+    assert printed.startswith("bit-identical")
+    for name in {n for n in names if (out / n).exists()}:
+        assert f"note: {name} is what a file manager or a copy left" in printed
+    # a file a user put there is still a difference, named
+    (out / "notes.txt").write_text("checked\n")
+    assert main(["verify", str(out), "--quiet"]) == 1
+    assert "notes.txt is not listed in the manifest" in capsys.readouterr().out
+
+
+def test_explorer_thumbnails_in_the_report_folder_do_not_block_a_rerun(copy, capsys):
+    """Windows Explorer leaves ``Thumbs.db`` in ``report/`` once its figures are viewed
+    (m): `run --out` and `report` into the folder refused it as a user's file to move
+    out; now the folder is replaced whole (a user's own file still refuses it)."""
+    out = copy / "out"
+    assert main(["report", str(out), "--quiet"]) == 0
+    (out / "report" / "Thumbs.db").write_bytes(b"\x00")
+    assert main(["report", str(out), "--quiet"]) == 0
+    assert not (out / "report" / "Thumbs.db").exists()
+    (out / "report" / "Thumbs.db").write_bytes(b"\x00")
+    assert main(["run", str(copy / "site.toml"), "--out", str(out), "--quiet"]) == 0
+    (out / "report").mkdir(exist_ok=True)
+    (out / "report" / "mine.txt").write_text("keep\n")
+    assert main(["run", str(copy / "site.toml"), "--out", str(out), "--quiet"]) == 2
+    assert "mine.txt" in _one_error_line(capsys)
