@@ -63,12 +63,14 @@ from __future__ import annotations
 
 import codecs
 import dataclasses
+import gzip
 import hashlib
 import json
 import os
 import re
 import shutil
 import tempfile
+import zlib
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -997,8 +999,9 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
                 return None, Difference("input", "input", column="input file", row=str(path),
                                         stored=str(sha), recomputed=actual)
             notes.append(f"input file: {str(path)!r} holds the recorded file's text re-saved "
-                         "otherwise (line endings, byte-order mark, encoding or final line "
-                         "break: git core.autocrlf, unzip -a, an editor); converted back, "
+                         "otherwise (line endings, byte-order mark, encoding, final line "
+                         "break or gzip: git core.autocrlf, unzip -a, an editor, an "
+                         "archive); converted back, "
                          f"its bytes have the recorded SHA-256 {sha}, and those bytes were "
                          "rerun")
             path = restored
@@ -1040,7 +1043,8 @@ def _restored_text(path: Path, sha, scratch: Path, number: int) -> Path | None:
     """The recorded input file restored from `path` in `scratch`, or None.
 
     Where `path` holds the recorded file's text re-saved otherwise (line endings,
-    byte-order mark, Unicode encoding, final line break: :func:`_text_variants`) and one
+    byte-order mark, Unicode encoding, final line break: :func:`_text_variants`), or
+    compressed with gzip (the name then loses its ``.gz``), and one
     variant gives back the recorded SHA-256 exactly, the recorded bytes are known whole:
     a copy of them is written under the same file name (its suffix chooses the reader)
     in a folder of its own in `scratch` and returned. Any other difference gives None.
@@ -1049,19 +1053,36 @@ def _restored_text(path: Path, sha, scratch: Path, number: int) -> Path | None:
     ----------
     NIST (2015). FIPS 180-4: Secure Hash Standard (SHA-256: equal digests stand for
     equal bytes).
+    Deutsch, P. (1996). RFC 1952: GZIP file format specification version 4.3.
     """
     try:
         data = path.read_bytes()
     except OSError:
         return None
+    name = path.name
+    if data.startswith(b"\x1f\x8b"):
+        # compressed for the archive (gzip, RFC 1952: magic bytes 1f 8b); the recorded
+        # file may be the text inside, as it is or re-saved
+        try:
+            data = gzip.decompress(data)
+        except (OSError, EOFError, zlib.error):
+            return None
+        name = path.stem if path.suffix.lower() == ".gz" else path.name
+        if hashlib.sha256(data).hexdigest() == sha:
+            return _restored_copy(data, name, scratch, number)
     for converted in _text_variants(data):
         if converted != data and hashlib.sha256(converted).hexdigest() == sha:
-            folder = scratch / f"restored-input-{number}"
-            folder.mkdir(parents=True, exist_ok=True)
-            target = folder / path.name
-            target.write_bytes(converted)
-            return target
+            return _restored_copy(converted, name, scratch, number)
     return None
+
+
+def _restored_copy(data: bytes, name: str, scratch: Path, number: int) -> Path:
+    """Write the recorded bytes `data` as `name` in a folder of its own in `scratch`."""
+    folder = scratch / f"restored-input-{number}"
+    folder.mkdir(parents=True, exist_ok=True)
+    target = folder / name
+    target.write_bytes(data)
+    return target
 
 
 def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch: Path,

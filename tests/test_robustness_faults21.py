@@ -150,3 +150,21 @@ def test_explorer_thumbnails_in_the_report_folder_do_not_block_a_rerun(copy, cap
     (out / "report" / "mine.txt").write_text("keep\n")
     assert main(["run", str(copy / "site.toml"), "--out", str(out), "--quiet"]) == 2
     assert "mine.txt" in _one_error_line(capsys)
+
+
+def test_an_input_gzipped_for_the_archive_verifies_with_input(copy, capsys):
+    """Known truth: gzip (RFC 1952) gives back the very bytes compressed, so the recorded
+    SHA-256 (FIPS 180-4) is checked on the decompressed file. An auditor's archive copy
+    ``tower.csv.gz`` given with ``--input`` was "not the input file" (exit 1)."""
+    import gzip
+
+    tower = copy / "tower.csv"
+    packed = copy / "tower.csv.gz"
+    packed.write_bytes(gzip.compress(tower.read_bytes()))
+    tower.unlink()
+    assert main(["verify", str(copy / "out"), "--input", str(packed)]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("bit-identical") and "gzip" in out
+    # another file compressed is still not the input
+    packed.write_bytes(gzip.compress(b"time,nee\n"))
+    assert main(["verify", str(copy / "out"), "--input", str(packed), "--quiet"]) == 1
