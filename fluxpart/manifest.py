@@ -41,7 +41,8 @@ from pathlib import Path
 from .errors import InputFileError
 
 __all__ = ["CAUTION", "MANIFEST_FILE", "MANIFEST_FORMAT", "REPORT_FOLDER", "RUN_LOG",
-           "build_manifest", "escaped_paths", "library_versions", "manifest_seal", "name_in_other_case",
+           "build_manifest", "escaped_paths", "library_versions", "manifest_seal", "manifest_text",
+           "name_in_other_case",
            "portable_provenance", "read_manifest", "recorded_path", "recorded_paths",
            "seal_intact", "shown_name", "undecodable_message", "undecodable_paths",
            "without_paths"]
@@ -339,6 +340,24 @@ def manifest_bytes(manifest: dict) -> bytes:
     return (json.dumps(manifest, indent=2, sort_keys=True, ensure_ascii=False) + "\n").encode()
 
 
+def manifest_text(data: bytes) -> str:
+    """The text of a ``manifest.json`` read as `data`, in whichever Unicode encoding it is.
+
+    fluxpart writes UTF-8 (:func:`manifest_bytes`). A byte-order mark an editor added on
+    saving (Windows Notepad) is no content, as re-indenting is none; nor is re-encoding
+    as UTF-16 or UTF-32 (Notepad's "Unicode", the ``>`` redirection and ``Out-File`` of
+    Windows PowerShell 5.1 write UTF-16 LE with a mark): the seal covers the parsed
+    content. The encoding is told from the first bytes as RFC 4627 section 3 lays down
+    (:func:`json.detect_encoding`); a legacy 8-bit code page raises UnicodeDecodeError.
+
+    References
+    ----------
+    Crockford, D. (2006). RFC 4627: The application/json media type, section 3
+    (encoding detected from the first four octets).
+    """
+    return data.decode(json.detect_encoding(data))
+
+
 def read_manifest(directory) -> dict:
     """Return the parsed ``manifest.json`` of a result folder (no integrity check).
 
@@ -421,10 +440,15 @@ def _read_manifest(directory: Path) -> dict:
         raise InputFileError(f"{str(path)!r} does not exist: {str(directory)!r} is not a "
                              f"fluxpart result folder{batch}")
     try:
-        # utf-8-sig: a byte-order mark an editor added on saving (Windows Notepad) is no
-        # content, as re-indenting is none; the seal covers the parsed content
-        manifest = json.loads(path.read_text(encoding="utf-8-sig"), object_pairs_hook=_once_each)
-    except (json.JSONDecodeError, UnicodeDecodeError) as error:
+        manifest = json.loads(manifest_text(path.read_bytes()), object_pairs_hook=_once_each)
+    except UnicodeDecodeError as error:
+        # an editor's save in a legacy code page (Windows "ANSI", latin-1) rewrote every
+        # non-ASCII character of the manifest (the en dash of "Lloyd–Taylor", a site name)
+        raise InputFileError(f"{str(path)!r} is not UTF-8 text ({error.reason} at byte "
+                             f"{error.start}): it was re-saved in another encoding (an "
+                             "editor's ANSI or latin-1), which changes its content; use the "
+                             "manifest.json as written") from None
+    except json.JSONDecodeError as error:
         raise InputFileError(f"{str(path)!r} is not valid JSON: {error}") from None
     except _RepeatedKey as repeated:
         # JSON readers keep the last of a repeated key and drop the others unseen, so a

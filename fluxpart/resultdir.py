@@ -61,6 +61,7 @@ from .manifest import (
     build_manifest,
     library_versions,
     manifest_bytes,
+    manifest_text,
     name_in_other_case,
     read_manifest,
     seal_intact,
@@ -421,7 +422,7 @@ def recorded_site_name(directory) -> str | None:
     damaged manifest does not protect its folder).
     """
     try:
-        manifest = json.loads((Path(directory) / MANIFEST_FILE).read_text(encoding="utf-8-sig"))
+        manifest = json.loads(manifest_text((Path(directory) / MANIFEST_FILE).read_bytes()))
     except (OSError, UnicodeDecodeError, ValueError):
         return None
     site = manifest.get("site") if isinstance(manifest, dict) else None
@@ -564,7 +565,7 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
         return []
     if marker == MANIFEST_FILE:
         try:
-            manifest = json.loads((directory / MANIFEST_FILE).read_text(encoding="utf-8-sig"))
+            manifest = json.loads(manifest_text((directory / MANIFEST_FILE).read_bytes()))
             tables = manifest.get("tables") if isinstance(manifest, dict) else None
             listed = {entry.get("file") for entry in tables.values() if isinstance(entry, dict)}
             listed |= {MANIFEST_FILE, RUN_LOG, REPORT_FOLDER}
@@ -585,16 +586,22 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
 
 
 #: Hidden names that file managers and network file systems leave in any folder: macOS
-#: Finder's ``.DS_Store`` and AppleDouble ``._*`` files, KDE Dolphin's ``.directory``,
-#: NFS's ``.nfs*`` and FUSE's ``.fuse_hidden*`` stand-ins for files deleted while open.
+#: Finder's ``.DS_Store`` and AppleDouble ``._*`` files (also what a Mac writes for
+#: each file copied onto FAT, exFAT or an SMB share), KDE Dolphin's ``.directory``,
+#: NFS's ``.nfs*`` and FUSE's ``.fuse_hidden*`` stand-ins for files deleted while open;
+#: Windows Explorer's thumbnail caches ``Thumbs.db`` / ``ehthumbs.db`` (written where a
+#: folder of pictures, such as ``report/``, is viewed) and folder settings
+#: ``desktop.ini``, named without regard to case as Windows does.
 _DISPOSABLE_PREFIXES = ("._", ".nfs", ".fuse_hidden")
 _DISPOSABLE_NAMES = (".DS_Store", ".directory")
+_DISPOSABLE_FOLDED = ("thumbs.db", "ehthumbs.db", "ehthumbs_vista.db", "desktop.ini")
 
 
 def _disposable(name: str) -> bool:
     """Whether `name` is what a file manager or network file system leaves in a folder
     (its loss with a replaced folder costs nothing)."""
-    return name in _DISPOSABLE_NAMES or name.startswith(_DISPOSABLE_PREFIXES)
+    return (name in _DISPOSABLE_NAMES or name.startswith(_DISPOSABLE_PREFIXES)
+            or name.casefold() in _DISPOSABLE_FOLDED)
 
 
 #: The tables of a result folder other than the ``parameters_*`` ones.
@@ -918,6 +925,14 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
                                           "is what an interrupted `fluxpart report` left (not "
                                           "part of the result, like report/); delete it or "
                                           "draw the report again (which removes it)"))
+            continue
+        if _disposable(path.name) and path.is_file() and not path.is_symlink():
+            # a genuine result copied through a Mac (Finder, AppleDouble files on FAT or
+            # exFAT) or viewed in Windows Explorer: no table is read from such a file
+            problems.append(FolderProblem(path.name, "leftover",
+                                          "is what a file manager or a copy left (macOS "
+                                          "Finder, Windows Explorer), not part of the "
+                                          "result; it may be deleted"))
             continue
         if path.name.startswith(f".{REPORT_FOLDER}.") and path.is_dir():
             problems.append(FolderProblem(path.name + "/", "extra",

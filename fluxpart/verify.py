@@ -61,13 +61,16 @@ verification.
 
 from __future__ import annotations
 
+import codecs
 import dataclasses
+import gzip
 import hashlib
 import json
 import os
 import re
 import shutil
 import tempfile
+import zlib
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -944,7 +947,7 @@ def _in_recorded_order(wanted: list, given: list, config_sha=None) -> list:
 
 
 def _input_files(directory: Path, recorded: dict, given, config_path: Path | None,
-                 config_sha=None):
+                 config_sha, scratch: Path, notes: list):
     """Return (input path or list of paths, difference or None).
 
     One file: the file given with ``--input``, else the one at the recorded path
@@ -952,7 +955,9 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
     have the recorded SHA-256. Several files (``recorded["files"]``): each is
     looked for likewise, ``--input`` given once per file in any order (matched by
     SHA-256); each must have its recorded SHA-256. A file given with ``--input``
-    that is the recorded site config (`config_sha`) is refused as swapped options.
+    that is the recorded site config (`config_sha`) is refused as swapped options. A file
+    holding the recorded text re-saved otherwise (line endings, encoding) is restored to
+    the recorded bytes in `scratch` and used, with a note (:func:`_restored_text`).
     """
     parts = recorded.get("files") if isinstance(recorded.get("files"), list) else None
     wanted = parts if parts else [recorded]
@@ -989,32 +994,95 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
                                      "give its new location with --input")
         actual = file_sha256(path)
         if actual != sha:
-            return None, Difference("input", "input", column="input file", row=str(path),
-                                    stored=str(sha), recomputed=actual,
-                                    cause=_line_ending_cause(path, sha))
+            restored = _restored_text(path, sha, scratch, number)
+            if restored is None:
+                return None, Difference("input", "input", column="input file", row=str(path),
+                                        stored=str(sha), recomputed=actual)
+            notes.append(f"input file: {str(path)!r} holds the recorded file's text re-saved "
+                         "otherwise (line endings, byte-order mark, encoding, final line "
+                         "break or gzip: git core.autocrlf, unzip -a, an editor, an "
+                         "archive); converted back, "
+                         f"its bytes have the recorded SHA-256 {sha}, and those bytes were "
+                         "rerun")
+            path = restored
         found.append(path)
     return (found if parts else found[0]), None
 
 
-def _line_ending_cause(path: Path, sha) -> str:
-    """Why a file that is not the recorded one differs, where its lines ending in CR LF
-    (Windows) instead of LF, or the reverse, is the whole difference: a text conversion
-    on the way (git's core.autocrlf, ``unzip -a``, an editor). Empty otherwise."""
+#: Text encodings an editor or a shell may re-save a text file in, told from its
+#: byte-order mark (the Unicode standard, section 23.8); without one, UTF-8 is tried.
+_MARKS = ((codecs.BOM_UTF32_LE, "utf-32"), (codecs.BOM_UTF32_BE, "utf-32"),
+          (codecs.BOM_UTF8, "utf-8-sig"), (codecs.BOM_UTF16_LE, "utf-16"),
+          (codecs.BOM_UTF16_BE, "utf-16"))
+
+
+def _text_variants(data: bytes):
+    """Yield (bytes, change) for the re-savings of `data` that keep its text.
+
+    A text file re-saved "with the same content" may get its line endings converted
+    (CR LF for LF or the reverse: git core.autocrlf, ``unzip -a``), a byte-order mark
+    added or dropped, another Unicode encoding (UTF-16 from Windows Notepad or
+    PowerShell 5.1), or a final line break added or dropped (most editors): each
+    variant undoes a combination of these, written as UTF-8. Nothing for bytes that
+    are not Unicode text.
+    """
+    encoding = next((name for mark, name in _MARKS if data.startswith(mark)), "utf-8")
+    try:
+        text = data.decode(encoding)
+    except UnicodeDecodeError:
+        return
+    unix = text.replace("\r\n", "\n")
+    bare = unix.rstrip("\n")
+    for body in dict.fromkeys((unix, bare, bare + "\n")):
+        for newline in ("\n", "\r\n"):
+            for mark in (b"", codecs.BOM_UTF8):
+                yield mark + body.replace("\n", newline).encode("utf-8")
+
+
+def _restored_text(path: Path, sha, scratch: Path, number: int) -> Path | None:
+    """The recorded input file restored from `path` in `scratch`, or None.
+
+    Where `path` holds the recorded file's text re-saved otherwise (line endings,
+    byte-order mark, Unicode encoding, final line break: :func:`_text_variants`), or
+    compressed with gzip (the name then loses its ``.gz``), and one
+    variant gives back the recorded SHA-256 exactly, the recorded bytes are known whole:
+    a copy of them is written under the same file name (its suffix chooses the reader)
+    in a folder of its own in `scratch` and returned. Any other difference gives None.
+
+    References
+    ----------
+    NIST (2015). FIPS 180-4: Secure Hash Standard (SHA-256: equal digests stand for
+    equal bytes).
+    Deutsch, P. (1996). RFC 1952: GZIP file format specification version 4.3.
+    """
     try:
         data = path.read_bytes()
     except OSError:
-        return ""
-    unix = data.replace(b"\r\n", b"\n")
-    for converted, change in ((unix, "Windows line endings (CR LF) where the recorded file "
-                               "has LF"),
-                              (unix.replace(b"\n", b"\r\n"), "LF line endings where the "
-                               "recorded file has Windows line endings (CR LF)")):
+        return None
+    name = path.name
+    if data.startswith(b"\x1f\x8b"):
+        # compressed for the archive (gzip, RFC 1952: magic bytes 1f 8b); the recorded
+        # file may be the text inside, as it is or re-saved
+        try:
+            data = gzip.decompress(data)
+        except (OSError, EOFError, zlib.error):
+            return None
+        name = path.stem if path.suffix.lower() == ".gz" else path.name
+        if hashlib.sha256(data).hexdigest() == sha:
+            return _restored_copy(data, name, scratch, number)
+    for converted in _text_variants(data):
         if converted != data and hashlib.sha256(converted).hexdigest() == sha:
-            return (f"its content is the recorded file's but with {change}: a text conversion "
-                    "on the way (git core.autocrlf, unzip -a, an editor) changed its bytes; "
-                    "give the file as it was received byte for byte (e.g. unzip without -a, "
-                    "a git checkout with core.autocrlf false)")
-    return ""
+            return _restored_copy(converted, name, scratch, number)
+    return None
+
+
+def _restored_copy(data: bytes, name: str, scratch: Path, number: int) -> Path:
+    """Write the recorded bytes `data` as `name` in a folder of its own in `scratch`."""
+    folder = scratch / f"restored-input-{number}"
+    folder.mkdir(parents=True, exist_ok=True)
+    target = folder / name
+    target.write_bytes(data)
+    return target
 
 
 def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch: Path,
@@ -1058,7 +1126,7 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
     if changed is not None:
         return "run", None, [changed]
     data_path, changed = _input_files(directory, recorded_input, input_path, locating,
-                                      provenance["site_config"].get("sha256"))
+                                      provenance["site_config"].get("sha256"), scratch, notes)
     if changed is not None:
         return "run", None, [changed]
     if provenance.get("settings") == "site config":

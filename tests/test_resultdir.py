@@ -436,6 +436,7 @@ def test_a_result_file_that_cannot_be_read_is_one_error_line(short_result, tmp_p
     target = str(folder / which)
     denied = PermissionError(13, "Permission denied", target)
     real_open, real_read_text = builtins.open, pathlib.Path.read_text
+    real_read_bytes = pathlib.Path.read_bytes
 
     def guarded_open(file, *args, **kwargs):
         if os.fspath(file) == target:
@@ -447,8 +448,14 @@ def test_a_result_file_that_cannot_be_read_is_one_error_line(short_result, tmp_p
             raise denied
         return real_read_text(self, *args, **kwargs)
 
+    def guarded_read_bytes(self):       # the manifest is read as bytes (its encoding told)
+        if str(self) == target:
+            raise denied
+        return real_read_bytes(self)
+
     monkeypatch.setattr(builtins, "open", guarded_open)
     monkeypatch.setattr(pathlib.Path, "read_text", guarded_read_text)
+    monkeypatch.setattr(pathlib.Path, "read_bytes", guarded_read_bytes)
     if command == "load":
         with pytest.raises(InputFileError, match=f"{which}' cannot be read: Permission denied"):
             fluxpart.load(folder)

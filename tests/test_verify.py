@@ -571,11 +571,13 @@ def test_quiet_verdict_names_a_missing_an_unlisted_file_and_an_edited_manifest(c
     file manager (.DS_Store) or an edited manifest gave 'NOT reproduced: 1 difference(s)'
     and no name (review round seven)."""
     out = copy / "out"
-    (out / ".DS_Store").write_bytes(b"\x00\x00\x00\x01Bud1")
+    # a file manager's .DS_Store is a note since round faults21 (a Finder copy of a
+    # genuine result verifies); a file a user added is still a difference
+    (out / "notes.txt").write_text("checked\n")
     assert main(["verify", str(out), "--quiet"]) == 1
     first = capsys.readouterr().out.splitlines()[0]
-    assert ".DS_Store is not listed in the manifest" in first
-    (out / ".DS_Store").unlink()
+    assert "notes.txt is not listed in the manifest" in first
+    (out / "notes.txt").unlink()
     (out / "daily.parquet").unlink()
     assert main(["verify", str(out), "--quiet"]) == 1
     first = capsys.readouterr().out.splitlines()[0]
@@ -745,20 +747,23 @@ def test_verify_names_what_a_stopped_run_left_beside_the_folder(copy, capsys):
     assert "beside the folder" not in capsys.readouterr().out
 
 
-def test_an_input_with_converted_line_endings_is_named_as_such(copy, capsys):
+def test_an_input_with_converted_line_endings_is_restored_and_rerun(copy, capsys):
     """A bundle unzipped with `unzip -a` or checked out by git with core.autocrlf gets its
     CSV's LF line endings turned into CR LF (the Windows text convention): same records,
-    another SHA-256. Verify said only 'it is not the input file the result was computed
-    from'; it now names the conversion and how to undo it. Still not reproduced (exit 1):
-    the recorded SHA-256 is what is certified. An input changed otherwise keeps the
-    plain message."""
+    another SHA-256. Round faults18 named the conversion with exit 1; round faults21
+    reruns the recorded bytes, restored by converting the line endings back, since they
+    have the recorded SHA-256 exactly (SHA-256, FIPS 180-4: the recorded file is known
+    whole), and names the conversion in a note: a genuine result verifies after a git
+    clone. An input changed otherwise keeps the plain message and exit 1."""
     tower = copy / "tower.csv"
     original = tower.read_bytes()
     tower.write_bytes(original.replace(b"\n", b"\r\n"))
-    assert main(["verify", str(copy / "out")]) == 1
+    assert main(["verify", str(copy / "out")]) == 0
     out = capsys.readouterr().out
-    assert "Windows line endings (CR LF)" in out and "unzip -a" in out
-    tower.write_bytes(original + b"\n")
+    assert out.startswith("bit-identical")
+    assert "note: input file:" in out and "re-saved otherwise" in out
+    assert tower.read_bytes() == original.replace(b"\n", b"\r\n")     # left as it was
+    tower.write_bytes(original.replace(b"\n", b"\n ", 1))     # one byte more: no re-saving
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
     assert "it is not the input file" in out and "line endings" not in out
