@@ -93,7 +93,7 @@ standard atomic weight of carbon (m)). The found u* threshold is the median of
 ``ustar_threshold`` of ``timeseries.parquet`` over the year's night records (sun down).
 
 Results (fluxpart 0.21.0+ at bb74d79, branch trial11; 7 sites, 14 complete budget years;
-about 110 s on the shared 2-core machine)::
+80-110 s on the shared 2-core machine)::
 
     site-year  NEE err  in  GPPn %  in  Recn %  in  GPPd %  in  Recd %  in   u* %
     D:2023     -11.3   y    -1.0   y    -2.4   y    +2.8   y    +7.2   y    +10
