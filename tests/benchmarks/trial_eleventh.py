@@ -139,8 +139,11 @@ g C m-2 a year):
 - S:2022, NEE -18.2 outside +-11.1: -7.9 is the planted noise summed over the written
   records (about 2 sigma of chance; ``nonoise`` -5.8), -6 to -9 the u*-filtered nights
   filled low by similar-driver donors (-0.05 umol m-2 s-1 a record over 2592 records, all
-  months; not explained: calm nights' soil is only 0.3 K warmer against the air than
-  turbulent nights').
+  months; evening hours -0.12 to -0.15, dawn +0.06 to +0.11; planted threshold and no
+  noise -5.7, S:2021 -6.8). About half is the soil-air decoupling of clear, calm nights: at
+  the same month and air temperature (2 K bins) the u*-filtered nights' soil is 0.35 K
+  warmer and their Reco 0.03 umol m-2 s-1 higher than the kept nights' that fill them;
+  the rest is not explained.
 - daytime Reco +12.1 / +16.1 % (S), +12.2 % (G:2023), +7.2 / +6.6 % (D): the daytime
   method's rectangular hyperbola on Smith-shaped light responses under noise. Both are
   needed: ``recthyp`` (the method's own form, noise kept) -1.1 / -0.5 % at S, ``nonoise``
