@@ -168,7 +168,8 @@ g C m-2 a year):
 - P:2024 daytime GPP +2.1 % just outside +-2.0 %: small.
 - A second draw (``--seed-offset 1``): NEE 12 of 14 covered, median |error| 5.5, worst
   -18.7 (S:2021: u*-filtered nights filled -8.8 again); E:2022 -13.2 outside +-10.1 (planted
-  noise summed -8.3, 2.4 sigma of chance); the undeclared cut C:2021 -14.8 (outage -10.8);
+  noise summed -8.3, 2.4 sigma of chance); the undeclared cut C:2021 -14.8 (outage -10.8;
+  ``declareboth`` -4.7 / -1.0, ``declarenone`` -14.8 / -9.0, ``nocutout`` -2.3 / +3.8);
   daytime Reco +8.3 to +11.4 % at D, S, G:2023; u* E -47 / -51 %, P:2024 +29 %, G:2022
   +22 %. Both draws (28 budget years): NEE 24 covered, median |error| 5.2, 23 within 15.
 - Costless: twilight GPP (1-4 g C m-2 a year in Rg < 10 W m-2 records; ``notwilight`` D
