@@ -1,4 +1,5 @@
-"""Scoring shared by the independent known-truth trials (``trial_third.py`` to ``trial_tenth.py``).
+"""Scoring shared by the independent known-truth trials (``trial_third.py`` to
+``trial_eleventh.py``).
 
 Only the scoring is shared: each trial keeps its own weather, flux physics and file layouts,
 so that the trials stay independent of each other and of ``fluxpart.scenarios``.
