@@ -1502,9 +1502,32 @@ _STORAGE_MIN_Z = 3.0
 #: store's change is no storage measurement, while a unit slip of mg CO2 (44.01 g mol-1,
 #: a factor of 22.7) or mg C (83.3) read as µmol steepens it far beyond (our choice).
 _STORAGE_SLOPE_TOO_SMALL = -5.0
+#: Median |daily mean| of the storage column over its median within-day standard
+#: deviation above which it is named as a level (a store or a running sum), not the
+#: store's change [1]. The change of a store sums over a day to the day's change of the
+#: store, a fraction of what a night adds and a morning removes: below 0.5 on the invented
+#: mass balance of the tests (about 0.1), 0.03 on the maize example's column, while a
+#: running sum of it drifts (29 on the maize example) and a store of 400 µmol mol-1 over
+#: 2 m is thousands of times its swing (our choice, four times the largest flux value).
+_STORAGE_LEVEL_RATIO = 2.0
 #: Blocks of days whose slopes give the spread, and the fewest such blocks judged.
 _STORAGE_BLOCK_DAYS = 10
 _STORAGE_MIN_BLOCKS = 8
+
+
+def _storage_level_ratio(storage, stamps) -> float:
+    """Median |daily mean| over the median within-day standard deviation of `storage`
+    [1], over days with at least half their records; NaN with fewer than 8 such days."""
+    series = pd.Series(np.asarray(storage, dtype=float), index=pd.DatetimeIndex(stamps))
+    days = series.groupby(series.index.normalize())
+    counts, sizes = days.count(), days.size()
+    full = counts >= np.maximum(4, sizes.max() // 2)
+    if int(full.sum()) < 8:
+        return np.nan
+    spread = float(np.median(days.std()[full]))
+    if not spread > 0:
+        return np.nan
+    return float(np.median(np.abs(days.mean()[full])) / spread)
 
 
 def storage_in_turbulent_flux(turbulent, storage, stamps, columns=None) -> str | None:
@@ -1589,6 +1612,15 @@ def storage_in_turbulent_flux(turbulent, storage, stamps, columns=None) -> str |
     spread = float(np.sqrt(count / (count - 1) * np.sum(weights**2 * (block_slopes - slope)**2)))
     names = columns or {}
     flux, term = names.get("nee", "nee"), names.get("storage", "storage")
+    level = _storage_level_ratio(storage, stamps)
+    if level > _STORAGE_LEVEL_RATIO:
+        return (f"the storage column ({term!r}) looks like a level, not a change: its daily "
+                f"means lie {level:.0f} times its spread within the day away from 0, while "
+                "the storage term (the change of the CO2 stored below the sensor) sums to "
+                "about 0 over a day as the store fills at night and empties in the morning; "
+                "a running sum of the storage term, or the store itself (concentration times "
+                "height), reads like this: map the storage flux (its change per second, "
+                "µmol m-2 s-1)")
     if np.isfinite(spread) and slope + _STORAGE_MIN_Z * spread < _STORAGE_SLOPE_TOO_SMALL:
         return (f"the storage column ({term!r}) looks about {-slope:.0f} times too small for "
                 f"the turbulent flux in {flux!r}: a turbulent flux falls as the storage term "

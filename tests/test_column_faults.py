@@ -825,3 +825,20 @@ def test_storage_in_mg_co2_read_as_umol_is_named_with_its_factor(seed):
     # the storage in its own unit, and a profile that holds half the store: quiet
     assert storage_in_turbulent_flux(turbulent, storage, stamps) is None
     assert storage_in_turbulent_flux(turbulent, 0.5 * storage, stamps) is None
+
+
+def test_storage_given_as_the_store_or_its_running_sum_is_named_as_a_level():
+    """The storage term is the store's change, S = dC/dt (Finnigan 2006), and sums over a
+    day to that day's change of the store; the store itself (here 400 µmol mol-1 of CO2 at
+    41.6 mol m-3 of air over 2 m, an ideal-gas molar density at 20 °C, (m)) or a running
+    sum of S with a profile's small zero offset is a level whose daily means lie far from
+    0. Known-truth recovery on the invented mass balance."""
+    stamps, _, turbulent, storage = stored_below_sensor(seed=3)
+    running = np.cumsum(storage + 0.05)
+    message = storage_in_turbulent_flux(turbulent, running, stamps, columns={"storage": "Sc"})
+    assert message is not None and "looks like a level" in message and "'Sc'" in message
+    store = 400.0 * 41.6 * 2.0 + np.cumsum(storage) * STEP * 60.0 / 2.0
+    assert "looks like a level" in storage_in_turbulent_flux(turbulent, store, stamps)
+    # the storage term itself, also with an offset of a tenth of its spread: quiet
+    assert storage_in_turbulent_flux(turbulent, storage, stamps) is None
+    assert storage_in_turbulent_flux(turbulent, storage + 0.1 * storage.std(), stamps) is None
