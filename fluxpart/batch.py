@@ -1023,6 +1023,7 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
                           "and a rerun skips them and rewrites the network tables") from None
     return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures,
                        warnings=tuple(same_input_sites(outcomes) + same_name_sites(outcomes)
+                                      + different_settings_sites(outcomes)
                                       + unlisted_site_folders(out, [k for k, _ in network.sites])))
 
 
@@ -1092,6 +1093,57 @@ def same_name_sites(outcomes) -> list[str]:
             "tables hold one name for different towers; give each its own [site] name (and "
             "check its latitude and longitude)"
             for members in groups.values() if _same_years_other_inputs(members)]
+
+
+#: Settings that belong to one site by nature, left out of :func:`different_settings_sites`:
+#: the dates of its own harvests or fires, and the budget year (a southern site's starts
+#: in July while a northern one's starts in January, common practice).
+_SITE_OWN_SETTINGS = ("events", "year_start")
+
+
+def different_settings_sites(outcomes) -> list[str]:
+    """At most one warning naming the [processing] settings that differ between sites.
+
+    A network's sites are compared with each other, so their budgets are meant to be
+    computed alike: a setting tried at one tower (a fixed u* threshold, another gap-fill
+    estimate, another respiration form) and left in its config, or a config copied from
+    an older template, computes that site otherwise without a word, while the network
+    tables put its sums beside the others' (round mistakes21). Sites are compared by the
+    resolved settings their manifests record (``config``; written and up-to-date sites),
+    every setting except those of :data:`_SITE_OWN_SETTINGS`. For each differing setting
+    the sites of each value are named (at most three settings, then a count).
+    """
+    configs: dict[str, dict] = {}
+    for outcome in outcomes:
+        if outcome.status == "failed":
+            continue
+        try:
+            manifest = read_manifest(Path(outcome.directory))
+        except (FluxpartError, OSError, ValueError):
+            continue
+        config = manifest.get("config") if isinstance(manifest, dict) else None
+        if isinstance(config, dict):
+            configs[outcome.key] = config
+    if len(configs) < 2:
+        return []
+    names = sorted({name for config in configs.values() for name in config}
+                   - set(_SITE_OWN_SETTINGS))
+    differing = []
+    for name in names:
+        values: dict[str, list[str]] = {}
+        for key, config in configs.items():
+            values.setdefault(json.dumps(config.get(name), sort_keys=True), []).append(key)
+        if len(values) > 1:
+            shown = "; ".join(f"{value} at {', '.join(repr(k) for k in keys)}"
+                              for value, keys in values.items())
+            differing.append(f"{name} ({shown})")
+    if not differing:
+        return []
+    more = f" and {len(differing) - 3} more" if len(differing) > 3 else ""
+    return [f"sites differ in [processing] settings: {', '.join(differing[:3])}{more}; the "
+            "network tables put their budgets side by side as if computed alike: check that "
+            "each difference is meant for that site (a setting tried at one tower and left "
+            "in its config, or a config copied from an older template, computes it otherwise)"]
 
 
 def _years(outcome) -> set | None:

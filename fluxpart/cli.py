@@ -358,6 +358,9 @@ def _command_check(args) -> int:
                                        config.ustar_method, Config().ustar_threshold)
         if unused:
             problems.append(f"u* threshold: {unused}")
+    from .settings_notes import ignored_settings
+
+    problems += ignored_settings(config)
     print(format_check(site_config.site, report, table, problems=problems))
     print(_format_clock(verdict))
     if counts is not None:

@@ -59,6 +59,7 @@ from .uncertainty import gap_runs
 from .variables import saturation_vapour_pressure, vpd_from_rh
 
 __all__ = ["GAPLESS_DAYS", "SOIL_RANGE_RATIO", "censored_nee", "delayed_tair",
+           "delayed_tair_in_a_year",
            "dew_point_as_tair", "flag_as_measurement", "gapless_nee", "interpolated_nee",
            "months_rising_with_light", "nee_day_shift", "nee_lag", "storage_in_turbulent_flux",
            "swapped_temperatures", "tair_lag", "values_written_twice",
@@ -1251,6 +1252,68 @@ def delayed_tair(tair, rh, vpd, interval_minutes: float, columns=None) -> str | 
             "temperature as tsoil), or respiration and the light response read a damped, "
             "late temperature (or align a logger whose clock is that far off)")
 
+def delayed_tair_in_a_year(tair, rh, vpd, stamps, interval_minutes: float,
+                           columns=None) -> str | None:
+    """:func:`delayed_tair` judged in each calendar year of a record of several years.
+
+    Parameters
+    ----------
+    tair, rh, vpd : array_like
+        As for :func:`delayed_tair` [°C, %, hPa].
+    stamps : pandas.DatetimeIndex
+        Start of each record (local standard time), same length.
+    interval_minutes : float
+        Record interval [min].
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The first named year's message, prefixed by the years named; None where the
+        record lies in one calendar year or no year's tair trails the humidity's.
+
+    Notes
+    -----
+    A file of several years whose logger program changed between them (columns added or
+    re-ordered at a new year) can hold the soil temperature in the column mapped as tair
+    for one year only; over the whole record the correct year's tair dilutes the soil's
+    delay below :func:`delayed_tair`'s correlation, and the budget of that year moves by
+    hundreds of g C m-2 (an invented two-year grassland record with its second year's air
+    and soil columns exchanged: that year's nighttime GPP and Reco -225, daytime GPP
+    -192 g C m-2, silent before; round mistakes21). Each calendar year with at least the
+    30 days :func:`delayed_tair` needs is judged by the same rule (90 min or more, a
+    correlation of 0.8 or more and 0.05 above the same record's), so a year of a
+    correct sensor is as quiet as a one-year file of it.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 3 and 8 (m).
+    """
+    stamps = pd.DatetimeIndex(stamps)
+    tair, rh, vpd = (np.asarray(v, dtype=float) for v in (tair, rh, vpd))
+    if not tair.size == rh.size == vpd.size == len(stamps) or tair.size == 0:
+        return None
+    years = stamps.year.to_numpy()
+    distinct = np.unique(years)
+    if distinct.size < 2:
+        return None
+    named = {}
+    for year in distinct:
+        inside = years == year
+        text = delayed_tair(tair[inside], rh[inside], vpd[inside], interval_minutes, columns)
+        if text:
+            named[int(year)] = text
+    if not named:
+        return None
+    first = min(named)
+    listed = ", ".join(str(year) for year in sorted(named))
+    where = (f"in {listed} only" if len(named) == 1 else f"in {listed}; in {first}")
+    return (f"{where} (not the whole record: were the columns re-ordered between years? "
+            f"correct that year in a copy of the file): {named[first]}")
+
+
 #: Lowest RH [%] of the records that judge :func:`vapour_pressure_as_vpd`: above 60 %
 #: the vapour pressure e exceeds the deficit e_s - e by 1.5 times or more and e_s
 #: exceeds it by 2.5 times or more (RH / (100 - RH), 100 / (100 - RH)), so neither can
@@ -1433,9 +1496,38 @@ _STORAGE_SLOPE_MIDWAY = -0.5
 #: named (one-sided p ~ 0.001; the blocks' spread, not the records', so correlated
 #: records do not inflate the evidence).
 _STORAGE_MIN_Z = 3.0
+#: Slope below which (by three standard errors) the storage column is named as too small
+#: for the turbulent flux: -1 for a storage term in the flux's unit; a profile that misses
+#: part of the air below the sensor steepens it, but one that holds under a fifth of the
+#: store's change is no storage measurement, while a unit slip of mg CO2 (44.01 g mol-1,
+#: a factor of 22.7) or mg C (83.3) read as µmol steepens it far beyond (our choice).
+_STORAGE_SLOPE_TOO_SMALL = -5.0
+#: Median |daily mean| of the storage column over its median within-day standard
+#: deviation above which it is named as a level (a store or a running sum), not the
+#: store's change [1]. The change of a store sums over a day to the day's change of the
+#: store, a fraction of what a night adds and a morning removes: below 0.5 on the invented
+#: mass balance of the tests (about 0.1), 0.03 on the maize example's column, while a
+#: running sum of it drifts (29 on the maize example) and a store of 400 µmol mol-1 over
+#: 2 m is thousands of times its swing (our choice, four times the largest flux value).
+_STORAGE_LEVEL_RATIO = 2.0
 #: Blocks of days whose slopes give the spread, and the fewest such blocks judged.
 _STORAGE_BLOCK_DAYS = 10
 _STORAGE_MIN_BLOCKS = 8
+
+
+def _storage_level_ratio(storage, stamps) -> float:
+    """Median |daily mean| over the median within-day standard deviation of `storage`
+    [1], over days with at least half their records; NaN with fewer than 8 such days."""
+    series = pd.Series(np.asarray(storage, dtype=float), index=pd.DatetimeIndex(stamps))
+    days = series.groupby(series.index.normalize())
+    counts, sizes = days.count(), days.size()
+    full = counts >= np.maximum(4, sizes.max() // 2)
+    if int(full.sum()) < 8:
+        return np.nan
+    spread = float(np.median(days.std()[full]))
+    if not spread > 0:
+        return np.nan
+    return float(np.median(np.abs(days.mean()[full])) / spread)
 
 
 def storage_in_turbulent_flux(turbulent, storage, stamps, columns=None) -> str | None:
@@ -1518,10 +1610,27 @@ def storage_in_turbulent_flux(turbulent, storage, stamps, columns=None) -> str |
     weights = products["ss"].to_numpy() / products["ss"].sum()
     count = len(products)
     spread = float(np.sqrt(count / (count - 1) * np.sum(weights**2 * (block_slopes - slope)**2)))
-    if not np.isfinite(spread) or slope - _STORAGE_MIN_Z * spread <= _STORAGE_SLOPE_MIDWAY:
-        return None
     names = columns or {}
     flux, term = names.get("nee", "nee"), names.get("storage", "storage")
+    level = _storage_level_ratio(storage, stamps)
+    if level > _STORAGE_LEVEL_RATIO:
+        return (f"the storage column ({term!r}) looks like a level, not a change: its daily "
+                f"means lie {level:.0f} times its spread within the day away from 0, while "
+                "the storage term (the change of the CO2 stored below the sensor) sums to "
+                "about 0 over a day as the store fills at night and empties in the morning; "
+                "a running sum of the storage term, or the store itself (concentration times "
+                "height), reads like this: map the storage flux (its change per second, "
+                "µmol m-2 s-1)")
+    if np.isfinite(spread) and slope + _STORAGE_MIN_Z * spread < _STORAGE_SLOPE_TOO_SMALL:
+        return (f"the storage column ({term!r}) looks about {-slope:.0f} times too small for "
+                f"the turbulent flux in {flux!r}: a turbulent flux falls as the storage term "
+                "rises from one night to the next by the same amount (slope about -1 on "
+                f"their hour-of-day anomalies), here by {-slope:.1f} ± {spread:.1f} times it, "
+                "so most of the store is missing from NEE; check the storage column's unit: "
+                "mg CO2 m-2 s-1 read as µmol m-2 s-1 is 22.7 times too small (declare "
+                "storage = \"mg CO2 m-2 s-1\" under [input.units])")
+    if not np.isfinite(spread) or slope - _STORAGE_MIN_Z * spread <= _STORAGE_SLOPE_MIDWAY:
+        return None
     evidence = ("a turbulent flux falls as the storage term rises from one night to the "
                 "next (slope about -1 on their hour-of-day anomalies)")
     if slope - _STORAGE_MIN_Z * spread > -_STORAGE_SLOPE_MIDWAY:

@@ -1340,13 +1340,23 @@ def event_notes(index, events) -> list:
     """
     if not len(events) or not len(index):
         return []
+    at_start = [event for event in events if pd.Timestamp(event) == index[0]]
     outside = [event for event in events
-               if not index[0] < pd.Timestamp(event) <= index[-1]]
-    if not outside:
-        return []
-    return [f"events: {', '.join(outside)} lie{'s' if len(outside) == 1 else ''} outside the "
+               if not index[0] < pd.Timestamp(event) <= index[-1] and event not in at_start]
+    notes = []
+    if outside:
+        notes.append(
+            f"events: {', '.join(outside)} lie{'s' if len(outside) == 1 else ''} outside the "
             f"record ({index[0]:%Y-%m-%d %H:%M} to {index[-1]:%Y-%m-%d %H:%M}), so "
-            f"{'it cuts' if len(outside) == 1 else 'they cut'} no gap filling; check the year"]
+            f"{'it cuts' if len(outside) == 1 else 'they cut'} no gap filling; check the year")
+    if at_start:
+        # round mistakes21: an event on the record's first stamp was called "outside the
+        # record" with "check the year", though its year is right; nothing precedes it
+        notes.append(f"events: {', '.join(at_start)} fall{'s' if len(at_start) == 1 else ''} "
+                     f"on the record's first record ({index[0]:%Y-%m-%d %H:%M}), so no record "
+                     "lies before it and it cuts no gap filling (an event before the record "
+                     "needs no declaring)")
+    return notes
 
 
 def _pieces(n: int, breaks) -> list:

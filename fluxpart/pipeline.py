@@ -45,6 +45,7 @@ from . import (
     preflight,
     schema,
     screening,
+    settings_notes,
     solar,
     storage_check,
     timestamps,
@@ -683,6 +684,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     unused = ustar.unused_threshold_note(ustar_table, config.ustar_threshold,
                                          config.ustar_method, Config().ustar_threshold)
     warnings.extend([unused] if unused else [])
+    warnings.extend(settings_notes.ignored_settings(config))
 
     filled_drivers = gapfill.fill_drivers(
         screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days,

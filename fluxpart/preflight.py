@@ -84,6 +84,7 @@ import pandas as pd
 from .column_faults import (
     censored_nee,
     delayed_tair,
+    delayed_tair_in_a_year,
     dew_point_as_tair,
     flag_as_measurement,
     gapless_nee,
@@ -398,6 +399,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
             text = delayed_tair(screened["tair"].to_numpy(dtype=float),
                                 screened["rh"].to_numpy(dtype=float),
                                 screened["vpd"].to_numpy(dtype=float), interval_minutes, names)
+            if not text:
+                text = delayed_tair_in_a_year(
+                    screened["tair"].to_numpy(dtype=float), screened["rh"].to_numpy(dtype=float),
+                    screened["vpd"].to_numpy(dtype=float), screened.index, interval_minutes,
+                    names)
             if text:
                 findings.append(Finding("input (tair delayed)", text, False))
         text = dew_point_as_tair(screened["tair"].to_numpy(dtype=float),

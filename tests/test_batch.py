@@ -870,3 +870,30 @@ def test_a_sites_warnings_are_listed_by_the_summary_not_printed_by_python(tmp_pa
         assert f"warning: site 'short': {text}" in summary
     again = batch.run_site("short", config, tmp_path / "out" / "short")
     assert again.status == "skipped" and again.warnings == outcome.warnings
+
+
+def test_sites_computed_with_different_settings_are_warned_about(tmp_path):
+    """Round mistakes21: one tower's config left with a fixed u* threshold tried there (or
+    copied from an older template) computed that site otherwise, silently, while the
+    network tables put its sums beside the others'. A network's budgets are compared with
+    each other, so they are computed alike (common practice); a site's own event dates and
+    budget year are its own and not named."""
+    def folder(key, **settings):
+        directory = tmp_path / key
+        directory.mkdir()
+        config = {"seed": 0, "ustar_method": "moving_point", "events": [],
+                  "year_start": "01-01", **settings}
+        (directory / "manifest.json").write_text(json.dumps({"config": config}))
+        return batch.SiteOutcome(key=key, config=f"{key}.toml", directory=str(directory),
+                                 status="written")
+
+    alike = [folder("east"), folder("north", events=["2021-07-20"]),
+             folder("south", year_start="07-01"),
+             batch.SiteOutcome(key="broken", config="broken.toml",
+                               directory=str(tmp_path / "none"), status="failed")]
+    assert batch.different_settings_sites(alike) == []
+    warnings = batch.different_settings_sites(alike + [folder("west", ustar_method="fixed")])
+    assert len(warnings) == 1
+    assert "ustar_method" in warnings[0] and "\"fixed\" at 'west'" in warnings[0]
+    assert "'east', 'north', 'south'" in warnings[0]
+    assert "events" not in warnings[0] and "year_start" not in warnings[0]

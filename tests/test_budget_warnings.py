@@ -37,3 +37,31 @@ def test_a_part_missing_for_another_reason_names_no_setting():
     assert "could not be estimated:" in text and "ustar_scenarios" not in text
     assert _uncertainty_parts_missing(2021, pd.Series({"uncertainty_parts_missing": ""}),
                                       Config()) == []
+
+
+def test_unfilled_records_between_close_events_name_the_events():
+    """Round mistakes21: one event a day cut the invented grassland example into pieces of
+    a day, each filled from its own records only (fluxpart.gapfill.event_breaks), so 6.5 %
+    of NEE stayed unfilled and the sum NaN, while the warning said no donors were found
+    "even in the whole record". A day gap keeps at most 48 half-hours of its own piece as
+    donors (a fact of the calendar); the warning now names the events and the piece."""
+    import numpy as np
+
+    from fluxpart.budget_warnings import _unfilled_warning
+
+    index = pd.date_range("2021-07-01", periods=10 * 48, freq="30min")
+    nee = np.ones(index.size)
+    nee[5 * 48 + 10] = np.nan                       # one unfilled record on 6 July
+    timeseries = pd.DataFrame({"nee_filled": nee}, index=index)
+    row = pd.Series({"records_unfilled": 1, "records_expected": index.size, "nee": np.nan})
+    annual = pd.DataFrame([row])
+    in_year = np.ones(index.size, dtype=bool)
+    events = Config(events=("2021-07-06", "2021-07-07"))
+    text = _unfilled_warning(2021, row, annual, timeseries, in_year, events, ["nee"])
+    assert "[processing] events: 2 date(s)" in text and "spans 1.0 days" in text
+    # without events, or with events that cut the record elsewhere only, as before
+    plain = _unfilled_warning(2021, row, annual, timeseries, in_year, Config(), ["nee"])
+    assert "events" not in plain and "not even in the whole record" in plain
+    far = _unfilled_warning(2021, row, annual, timeseries, in_year,
+                            Config(events=("2021-07-09",)), ["nee"])
+    assert "spans 8.0 days" in far           # the piece before the event holds the gap

@@ -769,3 +769,76 @@ def test_storage_of_the_opposite_sign_is_named_as_such():
     message = storage_in_turbulent_flux(turbulent, -storage, stamps)
     assert message is not None and "opposite sign" in message
     assert "already holds" not in message
+
+
+# ------------------------------------------------- round mistakes21: a year's columns, storage
+
+
+def test_soil_temperature_as_tair_in_one_year_of_several_is_named():
+    """Known-truth recovery: three invented years (120 days each, September to December)
+    of which the last holds the 10-cm soil temperature in the tair column (a logger
+    program re-ordered at a new year); heat conduction puts the soil's daily cycle z / d
+    = 1 rad behind the surface (Campbell & Norman 1998, ch. 8 (m)). Over the whole record
+    the two correct years dilute the delay below the rule; each year judged alone names
+    the third only."""
+    from fluxpart.column_faults import delayed_tair_in_a_year
+
+    blocks = []
+    for seed, soil_year in ((0, False), (1, False), (2, True)):
+        air, rh, vpd = humidity_record(seed)
+        _, soil = temperatures(0.10, seed=seed)
+        blocks.append((soil if soil_year else air, rh, vpd))
+    tair, rh, vpd = (np.concatenate([block[i] for block in blocks]) for i in range(3))
+    stamps = pd.DatetimeIndex(np.concatenate([
+        pd.date_range(f"{year}-09-02", periods=DAYS * PER_DAY, freq=f"{STEP}min")
+        for year in (2019, 2020, 2021)]))
+    assert delayed_tair(tair, rh, vpd, STEP) is None          # the whole record: diluted
+    names = {"tair": "Ta", "rh": "RH", "vpd": "VPD"}
+    text = delayed_tair_in_a_year(tair, rh, vpd, stamps, STEP, columns=names)
+    assert text is not None and text.startswith("in 2021 only") and "'Ta'" in text
+    delay = float(re.search(r"imply ([0-9.]+) h later", text).group(1))
+    assert abs(delay - 2.8) <= STEP / 60.0                     # to the record, as one year
+    # the same through the preflight, as `check` and `run` see it
+    frame = pd.DataFrame({"tair": tair, "rh": rh, "vpd": vpd}, index=stamps)
+    assert "input (tair delayed)" in [
+        f.stage for f in _column_faults(frame, np.zeros(tair.size), STEP)]
+    # every year's air temperature in place, or a record of one calendar year: quiet
+    air = np.concatenate([humidity_record(seed)[0] for seed in (0, 1, 2)])
+    assert delayed_tair_in_a_year(air, rh, vpd, stamps, STEP) is None
+    assert delayed_tair_in_a_year(tair[:DAYS * PER_DAY], rh[:DAYS * PER_DAY],
+                                  vpd[:DAYS * PER_DAY], stamps[:DAYS * PER_DAY], STEP) is None
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_storage_in_mg_co2_read_as_umol_is_named_with_its_factor(seed):
+    """A storage column in mg CO2 m-2 s-1 read as µmol m-2 s-1 is 1000 / 44.01 = 22.7
+    times too small (CO2 molar mass 44.01 g mol-1, a handbook constant): the turbulent
+    flux then falls by 22.7 times the column's rise, not once (NEE = F + S, Finnigan
+    2006). Known-truth recovery on the invented mass balance of the air below the
+    sensor."""
+    stamps, _, turbulent, storage = stored_below_sensor(seed=seed)
+    message = storage_in_turbulent_flux(turbulent, storage * 44.01 / 1000.0, stamps,
+                                        columns={"nee": "Fc", "storage": "Sc"})
+    assert message is not None and "'Sc'" in message and "too small" in message
+    factor = float(re.search(r"about (\d+) times too small", message).group(1))
+    assert 20 <= factor <= 25
+    # the storage in its own unit, and a profile that holds half the store: quiet
+    assert storage_in_turbulent_flux(turbulent, storage, stamps) is None
+    assert storage_in_turbulent_flux(turbulent, 0.5 * storage, stamps) is None
+
+
+def test_storage_given_as_the_store_or_its_running_sum_is_named_as_a_level():
+    """The storage term is the store's change, S = dC/dt (Finnigan 2006), and sums over a
+    day to that day's change of the store; the store itself (here 400 µmol mol-1 of CO2 at
+    41.6 mol m-3 of air over 2 m, an ideal-gas molar density at 20 °C, (m)) or a running
+    sum of S with a profile's small zero offset is a level whose daily means lie far from
+    0. Known-truth recovery on the invented mass balance."""
+    stamps, _, turbulent, storage = stored_below_sensor(seed=3)
+    running = np.cumsum(storage + 0.05)
+    message = storage_in_turbulent_flux(turbulent, running, stamps, columns={"storage": "Sc"})
+    assert message is not None and "looks like a level" in message and "'Sc'" in message
+    store = 400.0 * 41.6 * 2.0 + np.cumsum(storage) * STEP * 60.0 / 2.0
+    assert "looks like a level" in storage_in_turbulent_flux(turbulent, store, stamps)
+    # the storage term itself, also with an offset of a tenth of its spread: quiet
+    assert storage_in_turbulent_flux(turbulent, storage, stamps) is None
+    assert storage_in_turbulent_flux(turbulent, storage + 0.1 * storage.std(), stamps) is None

@@ -1166,3 +1166,17 @@ def test_outage_across_a_harvest_is_filled_from_its_own_side(seed):
     # canopy's last days (+1.47 / +1.46); with it, within 0.2 on both sides
     assert errors["without"][0] < -0.8 and errors["without"][1] > 0.8
     assert abs(errors["with"][0]) < 0.3 and abs(errors["with"][1]) < 0.3
+
+
+def test_an_event_on_the_records_first_stamp_is_not_called_outside_it():
+    """Round mistakes21: an event dated the record's first day was warned as "outside the
+    record ... check the year", though its date lies in the record; it cuts nothing since
+    no record precedes it (a record starting at an event's time lies after it)."""
+    from fluxpart.gapfill import event_notes
+
+    index = _index(96)                                   # 2021-03-01 00:00 to 03-02 23:30
+    (note,) = event_notes(index, ["2021-03-01"])
+    assert "first record" in note and "check the year" not in note
+    (note,) = event_notes(index, ["2020-03-01"])
+    assert "outside the record" in note and "check the year" in note
+    assert event_notes(index, ["2021-03-02"]) == []
