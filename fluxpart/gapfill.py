@@ -153,6 +153,7 @@ __all__ = [
     "QUALITY_MEASURED",
     "QUALITY_NAMES",
     "QUALITY_UNFILLED",
+    "crossed_event_notes",
     "driver_conditions",
     "event_breaks",
     "event_notes",
@@ -1207,7 +1208,12 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         fire; :func:`event_breaks` of ``Config.events``): the record is filled piece
         by piece, each gap from the records of its own piece only, so that no fill
         draws on the canopy before an event for a gap after it, or the reverse. The
-        windows of each piece widen within it. ``None`` (default): one piece.
+        windows of each piece widen within it. A gap that no pass fills from its own
+        piece (two events hours apart within an outage, an event near the record's
+        end) is filled from its piece joined to the next one (the last piece: the one
+        before), and further, rather than left unfilled: ``attrs["events_crossed"]``
+        of the result lists these joins (:func:`crossed_event_notes`). ``None``
+        (default): one piece.
 
     Returns
     -------
@@ -1219,7 +1225,9 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         and unfilled), ``std`` (population standard deviation of the records
         averaged, in the target's unit; NaN for measured and unfilled) and
         ``quality`` (int8: 0 measured, 1 A, 2 B, 3 C, -1 unfilled; labels in
-        :data:`QUALITY_NAMES`).
+        :data:`QUALITY_NAMES`). With ``breaks`` and a gap filled across one of them,
+        ``attrs["events_crossed"]``: a list of (break position joined, positions of
+        the records filled from the joined pieces).
 
     Raises
     ------
@@ -1288,23 +1296,60 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         all_conditions.append(condition)
         radiation_conditions.append(condition)
     regressors = list(zip((tair, vpd), tolerances[1:], strict=True))
-    pieces = []
-    for piece in _pieces(len(index), breaks):
-        def cut(pairs, piece=piece):
+
+    def fill(piece, want):
+        def cut(pairs):
             return [(driver[piece], tolerance[piece] if np.ndim(tolerance) else tolerance)
                     for driver, tolerance in pairs]
 
-        pieces.append(_fill_series(
+        return _fill_series(
             values[piece], per_day, diurnal_records,
             all_conditions=cut(all_conditions),
             radiation_conditions=cut(radiation_conditions),
             max_window_days=max_window_days, min_donors=min_donors,
-            is_night=None if night is None else night[piece],
-            wanted=None if wanted is None else wanted[piece], last_resort=True,
-            local_linear=estimate == "local_linear", radiation_regressors=cut(regressors)))
-    columns = pieces[0] if len(pieces) == 1 else tuple(
-        np.concatenate(parts) for parts in zip(*pieces, strict=True))
-    return _output_frame(index, *columns)
+            is_night=None if night is None else night[piece], wanted=want, last_resort=True,
+            local_linear=estimate == "local_linear", radiation_regressors=cut(regressors))
+
+    columns, crossed = _fill_pieces(fill, values, wanted, breaks)
+    out = _output_frame(index, *columns)
+    if crossed:
+        out.attrs["events_crossed"] = crossed
+    return out
+
+
+def _fill_pieces(fill, values, wanted, breaks) -> tuple:
+    """The output columns of `fill` run piece by piece between `breaks`, and the joins.
+
+    `fill(piece, want)` fills the records `piece` (a slice) from their own records, only
+    the gaps `want` (bool per record of the piece, or None for all). A gap its own piece
+    cannot fill (two events hours apart in an outage, an event near the record's end:
+    too few measured records between them) is filled from its piece joined to the next
+    one (the last piece: to the one before), joined further until it fills or the record
+    is whole again; its neighbours' records are then closer to its conditions than
+    none. Returns the columns and, per join, (break position dropped, positions of the
+    records filled across it) in a list (empty where every gap filled in its own piece).
+    """
+    n = values.size
+    edges = [0, *sorted({int(b) for b in (() if breaks is None else breaks) if 0 < b < n}), n]
+    parts = [fill(slice(start, stop), None if wanted is None else wanted[start:stop])
+             for start, stop in zip(edges[:-1], edges[1:], strict=True)]
+    if len(parts) == 1:
+        return parts[0], []
+    columns = tuple(np.concatenate(part) for part in zip(*parts, strict=True))
+    asked = np.isnan(values) if wanted is None else np.isnan(values) & wanted
+    crossed = []
+    while len(edges) > 2:
+        left = asked & (columns[1] == METHOD_UNFILLED)
+        if not left.any():
+            break
+        k = int(np.searchsorted(edges, np.argmax(left), side="right")) - 1
+        drop = k + 1 if k + 2 < len(edges) else k
+        crossed.append((edges.pop(drop), np.flatnonzero(left[edges[drop - 1]:edges[drop]])
+                        + edges[drop - 1]))
+        piece = slice(edges[drop - 1], edges[drop])
+        for column, part in zip(columns, fill(piece, left[piece]), strict=True):
+            column[piece] = np.where(left[piece], part, column[piece])
+    return columns, crossed
 
 
 def event_breaks(index, events) -> np.ndarray:
@@ -1349,11 +1394,35 @@ def event_notes(index, events) -> list:
             f"{'it cuts' if len(outside) == 1 else 'they cut'} no gap filling; check the year"]
 
 
-def _pieces(n: int, breaks) -> list:
-    """Slices of the n records between the positions `breaks` (all of them where None)."""
-    edges = [0, *sorted(int(b) for b in (() if breaks is None else breaks)), n]
-    return [slice(start, stop) for start, stop in zip(edges[:-1], edges[1:], strict=True)
-            if stop > start]
+def crossed_event_notes(index, events, crossed) -> list:
+    """Warnings for the NEE gaps filled across an event (``attrs["events_crossed"]`` of
+    :func:`fill_marginal`).
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Record starts (local standard time) of the fill.
+    events : sequence of str
+        ``Config.events`` (ISO 8601, local standard time).
+    crossed : list of (int, numpy.ndarray)
+        Per join: the break position dropped and the positions of the records filled
+        from the joined pieces.
+
+    Returns
+    -------
+    list of str
+        One warning per join naming its records and the event crossed; empty where none.
+    """
+    notes = []
+    for position, records in crossed:
+        names = [event for event in events if position in event_breaks(index, [event])]
+        notes.append(
+            f"events: {len(records)} NEE record(s) from {index[records[0]]:%Y-%m-%d %H:%M} to "
+            f"{index[records[-1]]:%Y-%m-%d %H:%M} (interval starts) could not be filled from "
+            "their own piece of the record (too few measured records between the events or "
+            f"the record's edge around them); they were filled across {', '.join(names)} "
+            "from the neighbouring piece as well, rather than left unfilled")
+    return notes
 
 
 def clearness_index(rg, potential, *, min_potential=_CLEARNESS_MIN_POTENTIAL) -> np.ndarray:

@@ -743,6 +743,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     outcomes = {name: (*outcome[:3], _shifted(outcome[3], form.shift), outcome[4])
                 for name, outcome in outcomes.items()}
     too_calm, nee_measured, filled, night, day = outcomes["central"]
+    warnings.extend(gapfill.crossed_event_notes(frame.index, config.events,
+                                                filled.attrs.pop("events_crossed", [])))
     day_evidence = _daytime_driver_evidence(frame, screened, filled_drivers,
                                             outcomes["central"], is_night, temperature, delay,
                                             config)

@@ -32,6 +32,7 @@ from fluxpart.gapfill import (
     QUALITY_NAMES,
     centred_rg_tolerance,
     clearness_index,
+    crossed_event_notes,
     driver_conditions,
     event_breaks,
     fill_drivers,
@@ -1166,3 +1167,40 @@ def test_outage_across_a_harvest_is_filled_from_its_own_side(seed):
     # canopy's last days (+1.47 / +1.46); with it, within 0.2 on both sides
     assert errors["without"][0] < -0.8 and errors["without"][1] > 0.8
     assert abs(errors["with"][0]) < 0.3 and abs(errors["with"][1]) < 0.3
+
+
+@pytest.mark.parametrize("minutes", [30, 60])
+def test_a_piece_too_short_to_fill_itself_is_filled_across_its_event(minutes):
+    """Known-truth recovery (invented data): a harvest and the ploughing 3 h after it fall
+    within an outage, and an event 2 h before the record's end cuts off a few gap records.
+    The records between the two events, or after the last one, have no measured record of
+    their own piece: they were left unfilled (NaN), which made the year's NEE sum NaN
+    (review23). They are filled from the neighbouring piece (the bare ground after the
+    ploughing; for the last piece, the one before) and named in attrs; every gap that
+    fills within its own piece keeps its fill."""
+    index, measured, drivers, truth, outage, bare, _ = _harvested(0, minutes=minutes)
+    night = _night(drivers)
+    measured = measured.copy()
+    measured[-(120 // minutes):] = np.nan                   # the last 2 h missing
+    harvest = index[0] + pd.Timedelta(days=40, hours=10)    # within the outage (days 35-45)
+    events = [f"{harvest:%Y-%m-%d %H:%M}", f"{harvest + pd.Timedelta(hours=3):%Y-%m-%d %H:%M}",
+              f"{index[-1] - pd.Timedelta(minutes=60):%Y-%m-%d %H:%M}"]
+    breaks = event_breaks(index, events)
+    out = fill_marginal_module(measured, drivers, index, is_night=night, breaks=breaks)
+    between = (index >= harvest) & (index < harvest + pd.Timedelta(hours=3))
+    assert np.isfinite(out["value"]).all() and (out["quality"] >= 0).all()
+    # bare ground (respiration alone) between the events: the canopy's uptake would be
+    # up to -22 µmol m-2 s-1 at high light
+    assert abs(np.mean(out["value"].to_numpy()[between] - truth[between])) < 1.0
+    crossed = out.attrs["events_crossed"]
+    assert sorted(position for position, _ in crossed) == [breaks[1], breaks[2]]
+    filled_across = np.unique(np.concatenate([records for _, records in crossed]))
+    assert between[filled_across].sum() == between.sum()
+    # the other gaps keep the fill of their own piece
+    alone = fill_marginal_module(measured[:breaks[0]], drivers.iloc[:breaks[0]],
+                                 index[:breaks[0]], is_night=night[:breaks[0]])
+    pd.testing.assert_frame_equal(out.iloc[:breaks[0]], alone, check_exact=True)
+    notes = crossed_event_notes(index, events, crossed)
+    assert len(notes) == 2 and events[1] in notes[0] and events[2] in notes[1]
+    assert f"from {harvest:%Y-%m-%d %H:%M} to" in notes[0]
+    assert all(events[0] not in note.split("across")[1] for note in notes)
