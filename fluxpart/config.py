@@ -565,12 +565,20 @@ class Config:
         return cls.from_mapping(processing)
 
     def to_dict(self) -> dict:
-        """Return all settings as plain JSON-compatible values."""
+        """Return all settings as plain JSON-compatible values.
+
+        ``events`` (new in 0.22.0) is written only where some are declared: without
+        them a run is that of 0.21.0, so the settings of a result written before stay
+        the settings of its rerun (``fluxpart verify``, and ``batch``'s test of a site
+        result being current, compare them key by key).
+        """
         out = asdict(self)
         out["e0_bounds"] = list(self.e0_bounds)
         out["daytime_e0_window_days"] = list(self.daytime_e0_window_days)
         out["ustar_scenarios"] = list(self.ustar_scenarios)
         out["events"] = list(self.events)
+        if not self.events:
+            del out["events"]
         return out
 
 
