@@ -978,9 +978,13 @@ def _events(events) -> tuple:
             moment = datetime.datetime(item.year, item.month, item.day)
         if (not isinstance(moment, datetime.datetime) or moment.tzinfo is not None
                 or moment.second or moment.microsecond):
+            # of several events, the one refused (a list of a season's cuts is long)
+            which = (f"is not allowed ({setting_text(item)})" if len(items) > 1
+                     else "is not allowed")
             _refuse("events", events, "a list of dates \"YYYY-MM-DD\" or date-times "
                     "\"YYYY-MM-DD HH:MM\" in the record's local standard time (no UTC "
-                    "offset), e.g. [\"2021-07-20\"] for a harvest on 20 July 2021")
+                    "offset), e.g. [\"2021-07-20\"] for a harvest on 20 July 2021",
+                    problem=which)
         out.append(moment.strftime("%Y-%m-%d") if moment.time() == datetime.time()
                    else moment.strftime("%Y-%m-%dT%H:%M"))
     return tuple(sorted(set(out)))

@@ -1380,13 +1380,15 @@ def event_breaks(index, events) -> np.ndarray:
 def event_notes(index, events) -> list:
     """Warnings for ``Config.events`` that cut no piece off the record `index`.
 
-    An event before the record's second record or after its last one changes no fill
-    (:func:`event_breaks`): most likely a mistyped year, which the user should see.
+    An event before the record's first record or after its last one changes no fill
+    (:func:`event_breaks`): most likely a mistyped year, which the user should see. One
+    at the first record's start changes none either, but lies in the record (a record
+    begun on the day of a harvest) and is not named.
     """
     if not len(events) or not len(index):
         return []
     outside = [event for event in events
-               if not index[0] < pd.Timestamp(event) <= index[-1]]
+               if not index[0] <= pd.Timestamp(event) <= index[-1]]
     if not outside:
         return []
     return [f"events: {', '.join(outside)} lie{'s' if len(outside) == 1 else ''} outside the "

@@ -426,3 +426,13 @@ def test_events_that_are_no_local_date_are_refused_naming_the_setting(events):
     error names the setting and shows the expected form."""
     with pytest.raises(ConfigError, match=r"\[processing\] events = .*YYYY-MM-DD"):
         Config(events=tuple(events))
+
+
+def test_an_event_refused_among_several_is_named():
+    """Of a list of dates (a grassland's cuts of a year), the one that is no date is named
+    beside the list: 30 February is not a day of the Gregorian calendar; review23."""
+    with pytest.raises(ConfigError, match=r'is not allowed \("2021-02-30"\): expected'):
+        Config(events=("2021-05-12", "2021-02-30", "2021-07-01"))
+    with pytest.raises(ConfigError, match=r'\[processing\] events = "2021-02-30" is not '
+                                          r'allowed: expected'):
+        Config(events="2021-02-30")

@@ -35,6 +35,7 @@ from fluxpart.gapfill import (
     crossed_event_notes,
     driver_conditions,
     event_breaks,
+    event_notes,
     fill_drivers,
     fill_frame,
     local_linear_correction,
@@ -1204,3 +1205,15 @@ def test_a_piece_too_short_to_fill_itself_is_filled_across_its_event(minutes):
     assert len(notes) == 2 and events[1] in notes[0] and events[2] in notes[1]
     assert f"from {harvest:%Y-%m-%d %H:%M} to" in notes[0]
     assert all(events[0] not in note.split("across")[1] for note in notes)
+
+
+def test_an_event_at_the_records_start_is_not_called_outside_it():
+    """A record begun at midnight of a harvest day (``events = ["2021-07-20"]``, the first
+    stamp 2021-07-20 00:00) holds the event at its first record: nothing to keep apart,
+    and the warning said it lay "outside the record (2021-07-20 00:00 to ...)" (review23).
+    A day before the record, or after its last record, is still named."""
+    index = _index(480, start="2021-07-20")
+    assert event_notes(index, ["2021-07-20"]) == []
+    assert event_breaks(index, ["2021-07-20"]).tolist() == []
+    notes = event_notes(index, ["2021-07-20", "2021-07-19", "2021-08-01"])
+    assert len(notes) == 1 and "2021-07-19, 2021-08-01 lie outside" in notes[0]
