@@ -433,8 +433,12 @@ class Config:
         artificial gaps of the gap-filling uncertainty alike, so that an outage across
         a harvest is not filled from the canopy before it, nor the days before it from
         bare ground. A record starting at an event's time lies after it. Default: none.
-        The partitionings' windows (4 to 15 days) are not cut at events. A TOML date
-        (``events = [2021-07-20]``) is read as that date.
+        A gap with too few measured records in its own piece to be filled (two events
+        hours apart within an outage, an event near the record's end) is filled from the
+        neighbouring piece, and warned about, rather than left unfilled (which would
+        leave the year's NEE sum NaN). The partitionings' windows (4 to
+        15 days) are not cut at events. A TOML date (``events = [2021-07-20]``) is read
+        as that date. Written into a result's settings only where some are declared.
 
     Notes
     -----
