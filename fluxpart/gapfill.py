@@ -1418,9 +1418,11 @@ def crossed_event_notes(index, events, crossed) -> list:
     notes = []
     for position, records in crossed:
         names = [event for event in events if position in event_breaks(index, [event])]
+        first, last = (f"{index[records[i]]:%Y-%m-%d %H:%M}" for i in (0, -1))
+        where = (f"1 NEE record at {first}" if len(records) == 1
+                 else f"{len(records)} NEE records from {first} to {last}")
         notes.append(
-            f"events: {len(records)} NEE record(s) from {index[records[0]]:%Y-%m-%d %H:%M} to "
-            f"{index[records[-1]]:%Y-%m-%d %H:%M} (interval starts) could not be filled from "
+            f"events: {where} (interval starts) could not be filled from "
             "their own piece of the record (too few measured records between the events or "
             f"the record's edge around them); they were filled across {', '.join(names)} "
             "from the neighbouring piece as well, rather than left unfilled")
