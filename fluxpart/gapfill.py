@@ -1226,8 +1226,8 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         averaged, in the target's unit; NaN for measured and unfilled) and
         ``quality`` (int8: 0 measured, 1 A, 2 B, 3 C, -1 unfilled; labels in
         :data:`QUALITY_NAMES`). With ``breaks`` and a gap filled across one of them,
-        ``attrs["events_crossed"]``: a list of (break position joined, positions of
-        the records filled from the joined pieces).
+        ``attrs["events_crossed"]``: a list of (break position joined, first and last
+        position of the records filled from the joined pieces, their number), ints.
 
     Raises
     ------
@@ -1326,8 +1326,9 @@ def _fill_pieces(fill, values, wanted, breaks) -> tuple:
     too few measured records between them) is filled from its piece joined to the next
     one (the last piece: to the one before), joined further until it fills or the record
     is whole again; its neighbours' records are then closer to its conditions than
-    none. Returns the columns and, per join, (break position dropped, positions of the
-    records filled across it) in a list (empty where every gap filled in its own piece).
+    none. Returns the columns and, per join, (break position dropped, first and last
+    position of the records filled across it, their number) in a list (empty where every
+    gap filled in its own piece).
     """
     n = values.size
     edges = [0, *sorted({int(b) for b in (() if breaks is None else breaks) if 0 < b < n}), n]
@@ -1344,9 +1345,11 @@ def _fill_pieces(fill, values, wanted, breaks) -> tuple:
             break
         k = int(np.searchsorted(edges, np.argmax(left), side="right")) - 1
         drop = k + 1 if k + 2 < len(edges) else k
-        crossed.append((edges.pop(drop), np.flatnonzero(left[edges[drop - 1]:edges[drop]])
-                        + edges[drop - 1]))
+        joined = edges.pop(drop)
         piece = slice(edges[drop - 1], edges[drop])
+        records = np.flatnonzero(left[piece]) + piece.start
+        # plain ints: pandas compares and copies a frame's attrs in its operations
+        crossed.append((joined, int(records[0]), int(records[-1]), int(records.size)))
         for column, part in zip(columns, fill(piece, left[piece]), strict=True):
             column[piece] = np.where(left[piece], part, column[piece])
     return columns, crossed
@@ -1406,9 +1409,9 @@ def crossed_event_notes(index, events, crossed) -> list:
         Record starts (local standard time) of the fill.
     events : sequence of str
         ``Config.events`` (ISO 8601, local standard time).
-    crossed : list of (int, numpy.ndarray)
-        Per join: the break position dropped and the positions of the records filled
-        from the joined pieces.
+    crossed : list of (int, int, int, int)
+        Per join: the break position dropped, the first and last position of the
+        records filled from the joined pieces, and their number.
 
     Returns
     -------
@@ -1416,11 +1419,11 @@ def crossed_event_notes(index, events, crossed) -> list:
         One warning per join naming its records and the event crossed; empty where none.
     """
     notes = []
-    for position, records in crossed:
+    for position, first_record, last_record, count in crossed:
         names = [event for event in events if position in event_breaks(index, [event])]
-        first, last = (f"{index[records[i]]:%Y-%m-%d %H:%M}" for i in (0, -1))
-        where = (f"1 NEE record at {first}" if len(records) == 1
-                 else f"{len(records)} NEE records from {first} to {last}")
+        first, last = (f"{index[i]:%Y-%m-%d %H:%M}" for i in (first_record, last_record))
+        where = (f"1 NEE record at {first}" if count == 1
+                 else f"{count} NEE records from {first} to {last}")
         notes.append(
             f"events: {where} (interval starts) could not be filled from "
             "their own piece of the record (too few measured records between the events or "

@@ -1194,9 +1194,11 @@ def test_a_piece_too_short_to_fill_itself_is_filled_across_its_event(minutes):
     # up to -22 µmol m-2 s-1 at high light
     assert abs(np.mean(out["value"].to_numpy()[between] - truth[between])) < 1.0
     crossed = out.attrs["events_crossed"]
-    assert sorted(position for position, _ in crossed) == [breaks[1], breaks[2]]
-    filled_across = np.unique(np.concatenate([records for _, records in crossed]))
-    assert between[filled_across].sum() == between.sum()
+    assert sorted(join[0] for join in crossed) == [breaks[1], breaks[2]]
+    first, last, count = next(join[1:] for join in crossed if join[0] == breaks[1])
+    assert (index[first], index[last], count) == (index[between][0], index[between][-1],
+                                                  between.sum())
+    assert all(isinstance(value, int) for join in crossed for value in join)
     # the other gaps keep the fill of their own piece
     alone = fill_marginal_module(measured[:breaks[0]], drivers.iloc[:breaks[0]],
                                  index[:breaks[0]], is_night=night[:breaks[0]])
