@@ -388,8 +388,11 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
     verdict, findings = _clock_and_preflight(
         frame, site, config, interval, geometry, is_night, screens,
         {"time_marks": time_marks, "shift_minutes": shift_applied_minutes, "columns": columns})
+    # events outside the record (a mistyped year) are named before a run, as `run` names them
     return verdict, findings + [preflight.Finding("annual budget", note, False)
-                                for note in edges]
+                                for note in edges] + [
+        preflight.Finding("gap filling", note, False)
+        for note in gapfill.event_notes(frame.index, config.events)]
 
 
 def _refuse(verdict, findings, config) -> None:
