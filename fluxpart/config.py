@@ -433,8 +433,12 @@ class Config:
         artificial gaps of the gap-filling uncertainty alike, so that an outage across
         a harvest is not filled from the canopy before it, nor the days before it from
         bare ground. A record starting at an event's time lies after it. Default: none.
-        The partitionings' windows (4 to 15 days) are not cut at events. A TOML date
-        (``events = [2021-07-20]``) is read as that date.
+        A gap with too few measured records in its own piece to be filled (two events
+        hours apart within an outage, an event near the record's end) is filled from the
+        neighbouring piece, and warned about, rather than left unfilled (which would
+        leave the year's NEE sum NaN). The partitionings' windows (4 to
+        15 days) are not cut at events. A TOML date (``events = [2021-07-20]``) is read
+        as that date. Written into a result's settings only where some are declared.
 
     Notes
     -----
@@ -565,12 +569,20 @@ class Config:
         return cls.from_mapping(processing)
 
     def to_dict(self) -> dict:
-        """Return all settings as plain JSON-compatible values."""
+        """Return all settings as plain JSON-compatible values.
+
+        ``events`` (new in 0.22.0) is written only where some are declared: without
+        them a run is that of 0.21.0, so the settings of a result written before stay
+        the settings of its rerun (``fluxpart verify``, and ``batch``'s test of a site
+        result being current, compare them key by key).
+        """
         out = asdict(self)
         out["e0_bounds"] = list(self.e0_bounds)
         out["daytime_e0_window_days"] = list(self.daytime_e0_window_days)
         out["ustar_scenarios"] = list(self.ustar_scenarios)
         out["events"] = list(self.events)
+        if not self.events:
+            del out["events"]
         return out
 
 
@@ -970,9 +982,13 @@ def _events(events) -> tuple:
             moment = datetime.datetime(item.year, item.month, item.day)
         if (not isinstance(moment, datetime.datetime) or moment.tzinfo is not None
                 or moment.second or moment.microsecond):
+            # of several events, the one refused (a list of a season's cuts is long)
+            which = (f"is not allowed ({setting_text(item)})" if len(items) > 1
+                     else "is not allowed")
             _refuse("events", events, "a list of dates \"YYYY-MM-DD\" or date-times "
                     "\"YYYY-MM-DD HH:MM\" in the record's local standard time (no UTC "
-                    "offset), e.g. [\"2021-07-20\"] for a harvest on 20 July 2021")
+                    "offset), e.g. [\"2021-07-20\"] for a harvest on 20 July 2021",
+                    problem=which)
         out.append(moment.strftime("%Y-%m-%d") if moment.time() == datetime.time()
                    else moment.strftime("%Y-%m-%dT%H:%M"))
     return tuple(sorted(set(out)))

@@ -157,21 +157,6 @@ def _flag(values, name: str, long_name: str):
                    "flag_meanings": meanings}
 
 
-def _seconds_present(table, interval, fallback_seconds):
-    """Seconds of records present in each period (NaN where none; `fallback_seconds` where
-    the table has no ``records``) and the share of the period's records present (None
-    without ``records_expected``)."""
-    seconds = (table["records"].to_numpy(dtype=float) * interval * 60.0
-               if "records" in table.columns else fallback_seconds)
-    seconds = np.where(seconds > 0, seconds, np.nan)
-    present = None
-    if {"records", "records_expected"} <= set(table.columns):
-        expected = table["records_expected"].to_numpy(dtype=float)
-        present = table["records"].to_numpy(dtype=float) / np.where(expected > 0, expected,
-                                                                     np.nan)
-    return seconds, present
-
-
 def _bounds(starts: pd.DatetimeIndex, length: pd.Timedelta, offset: pd.Timedelta):
     """UTC cell midpoints and (n, 2) bounds of cells starting at local `starts`."""
     start_utc = (starts - offset).to_numpy()
@@ -280,7 +265,7 @@ def to_xarray(result):
     daily = result.daily
     day, day_bounds = _bounds(pd.DatetimeIndex(daily.index), pd.Timedelta(days=1), offset)
     variables["day_bounds"] = (("day", "nv"), day_bounds)
-    seconds, present = _seconds_present(daily, interval, np.full(len(daily), 86400.0))
+    seconds, present = _coverage(daily, interval, np.full(len(daily), 86400.0))
     for name in _FLUXES:
         if name not in daily.columns:
             continue
@@ -381,6 +366,25 @@ _PERIOD_TEXT = {"month": ("monthly", "calendar month of local standard time"),
                          "standard time")}
 
 
+def _coverage(table, interval, full_seconds) -> tuple:
+    """Seconds the records present in each period span [s] (NaN for none) and the share of
+    the period's records present (None where the table has no record counts).
+
+    `table` holds a budget table's ``records`` and ``records_expected``; `interval` is the
+    record length [min]; `full_seconds` the periods' lengths [s], taken where ``records``
+    is absent (a table written before the counts).
+    """
+    seconds = (table["records"].to_numpy(dtype=float) * interval * 60.0
+               if "records" in table.columns else np.asarray(full_seconds, dtype=float))
+    seconds = np.where(seconds > 0, seconds, np.nan)
+    present = None
+    if {"records", "records_expected"} <= set(table.columns):
+        expected = table["records_expected"].to_numpy(dtype=float)
+        present = table["records"].to_numpy(dtype=float) / np.where(expected > 0, expected,
+                                                                     np.nan)
+    return seconds, present
+
+
 def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: int,
                       offset: pd.Timedelta):
     """Add the sums of one budget table (``monthly`` or ``annual``) to `variables`.
@@ -434,8 +438,8 @@ def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: 
     end_utc = (ends - offset).to_numpy()
     middle = start_utc + (end_utc - start_utc) / 2
     variables[f"{dim}_bounds"] = ((dim, "nv"), np.stack([start_utc, end_utc], axis=1))
-    seconds, present = _seconds_present(
-        table, interval, (end_utc - start_utc).astype("timedelta64[s]").astype(float))
+    seconds, present = _coverage(table, interval,
+                                 (end_utc - start_utc).astype("timedelta64[s]").astype(float))
     method = f"{dim}: sum (comment: over the records present)"
     for name, (_, text) in _FLUXES.items():
         if name not in table.columns:

@@ -153,6 +153,7 @@ __all__ = [
     "QUALITY_MEASURED",
     "QUALITY_NAMES",
     "QUALITY_UNFILLED",
+    "crossed_event_notes",
     "driver_conditions",
     "event_breaks",
     "event_notes",
@@ -1207,7 +1208,12 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         fire; :func:`event_breaks` of ``Config.events``): the record is filled piece
         by piece, each gap from the records of its own piece only, so that no fill
         draws on the canopy before an event for a gap after it, or the reverse. The
-        windows of each piece widen within it. ``None`` (default): one piece.
+        windows of each piece widen within it. A gap that no pass fills from its own
+        piece (two events hours apart within an outage, an event near the record's
+        end) is filled from its piece joined to the next one (the last piece: the one
+        before), and further, rather than left unfilled: ``attrs["events_crossed"]``
+        of the result lists these joins (:func:`crossed_event_notes`). ``None``
+        (default): one piece.
 
     Returns
     -------
@@ -1219,7 +1225,9 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         and unfilled), ``std`` (population standard deviation of the records
         averaged, in the target's unit; NaN for measured and unfilled) and
         ``quality`` (int8: 0 measured, 1 A, 2 B, 3 C, -1 unfilled; labels in
-        :data:`QUALITY_NAMES`).
+        :data:`QUALITY_NAMES`). With ``breaks`` and a gap filled across one of them,
+        ``attrs["events_crossed"]``: a list of (break position joined, first and last
+        position of the records filled from the joined pieces, their number), ints.
 
     Raises
     ------
@@ -1288,23 +1296,63 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         all_conditions.append(condition)
         radiation_conditions.append(condition)
     regressors = list(zip((tair, vpd), tolerances[1:], strict=True))
-    pieces = []
-    for piece in _pieces(len(index), breaks):
-        def cut(pairs, piece=piece):
+
+    def fill(piece, want):
+        def cut(pairs):
             return [(driver[piece], tolerance[piece] if np.ndim(tolerance) else tolerance)
                     for driver, tolerance in pairs]
 
-        pieces.append(_fill_series(
+        return _fill_series(
             values[piece], per_day, diurnal_records,
             all_conditions=cut(all_conditions),
             radiation_conditions=cut(radiation_conditions),
             max_window_days=max_window_days, min_donors=min_donors,
-            is_night=None if night is None else night[piece],
-            wanted=None if wanted is None else wanted[piece], last_resort=True,
-            local_linear=estimate == "local_linear", radiation_regressors=cut(regressors)))
-    columns = pieces[0] if len(pieces) == 1 else tuple(
-        np.concatenate(parts) for parts in zip(*pieces, strict=True))
-    return _output_frame(index, *columns)
+            is_night=None if night is None else night[piece], wanted=want, last_resort=True,
+            local_linear=estimate == "local_linear", radiation_regressors=cut(regressors))
+
+    columns, crossed = _fill_pieces(fill, values, wanted, breaks)
+    out = _output_frame(index, *columns)
+    if crossed:
+        out.attrs["events_crossed"] = crossed
+    return out
+
+
+def _fill_pieces(fill, values, wanted, breaks) -> tuple:
+    """The output columns of `fill` run piece by piece between `breaks`, and the joins.
+
+    `fill(piece, want)` fills the records `piece` (a slice) from their own records, only
+    the gaps `want` (bool per record of the piece, or None for all). A gap its own piece
+    cannot fill (two events hours apart in an outage, an event near the record's end:
+    too few measured records between them) is filled from its piece joined to the next
+    one (the last piece: to the one before), joined further until it fills or the record
+    is whole again; its neighbours' records are then closer to its conditions than
+    none. Returns the columns and, per join, (break position dropped, first and last
+    position of the records filled across it, their number) in a list (empty where every
+    gap filled in its own piece).
+    """
+    n = values.size
+    edges = [0, *sorted({int(b) for b in (() if breaks is None else breaks) if 0 < b < n}), n]
+    parts = [fill(slice(start, stop), None if wanted is None else wanted[start:stop])
+             for start, stop in zip(edges[:-1], edges[1:], strict=True)]
+    if len(parts) == 1:
+        return parts[0], []
+    columns = tuple(np.concatenate(part) for part in zip(*parts, strict=True))
+    asked = np.isnan(values) if wanted is None else np.isnan(values) & wanted
+    crossed = []
+    while len(edges) > 2:
+        left = asked & (columns[1] == METHOD_UNFILLED)
+        if not left.any():
+            break
+        k = int(np.searchsorted(edges, np.argmax(left), side="right")) - 1
+        drop = k + 1 if k + 2 < len(edges) else k
+        joined = edges.pop(drop)
+        piece = slice(edges[drop - 1], edges[drop])
+        records = np.flatnonzero(left[piece]) + piece.start
+        # plain ints: pandas compares and copies a frame's attrs in its operations
+        crossed.append((joined, int(records[0]), int(records[-1]), int(records.size)))
+        for column, part in zip(columns, fill(piece, left[piece]), strict=True):
+            column[piece] = np.where(left[piece], part, column[piece])
+    return columns, crossed
 
 
 def event_breaks(index, events) -> np.ndarray:
@@ -1335,35 +1383,53 @@ def event_breaks(index, events) -> np.ndarray:
 def event_notes(index, events) -> list:
     """Warnings for ``Config.events`` that cut no piece off the record `index`.
 
-    An event before the record's second record or after its last one changes no fill
-    (:func:`event_breaks`): most likely a mistyped year, which the user should see.
+    An event before the record's first record or after its last one changes no fill
+    (:func:`event_breaks`): most likely a mistyped year, which the user should see. One
+    at the first record's start changes none either, but lies in the record (a record
+    begun on the day of a harvest) and is not named.
     """
     if not len(events) or not len(index):
         return []
-    at_start = [event for event in events if pd.Timestamp(event) == index[0]]
     outside = [event for event in events
-               if not index[0] < pd.Timestamp(event) <= index[-1] and event not in at_start]
-    notes = []
-    if outside:
-        notes.append(
-            f"events: {', '.join(outside)} lie{'s' if len(outside) == 1 else ''} outside the "
+               if not index[0] <= pd.Timestamp(event) <= index[-1]]
+    if not outside:
+        return []
+    return [f"events: {', '.join(outside)} lie{'s' if len(outside) == 1 else ''} outside the "
             f"record ({index[0]:%Y-%m-%d %H:%M} to {index[-1]:%Y-%m-%d %H:%M}), so "
-            f"{'it cuts' if len(outside) == 1 else 'they cut'} no gap filling; check the year")
-    if at_start:
-        # round mistakes21: an event on the record's first stamp was called "outside the
-        # record" with "check the year", though its year is right; nothing precedes it
-        notes.append(f"events: {', '.join(at_start)} fall{'s' if len(at_start) == 1 else ''} "
-                     f"on the record's first record ({index[0]:%Y-%m-%d %H:%M}), so no record "
-                     "lies before it and it cuts no gap filling (an event before the record "
-                     "needs no declaring)")
+            f"{'it cuts' if len(outside) == 1 else 'they cut'} no gap filling; check the year"]
+
+
+def crossed_event_notes(index, events, crossed) -> list:
+    """Warnings for the NEE gaps filled across an event (``attrs["events_crossed"]`` of
+    :func:`fill_marginal`).
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Record starts (local standard time) of the fill.
+    events : sequence of str
+        ``Config.events`` (ISO 8601, local standard time).
+    crossed : list of (int, int, int, int)
+        Per join: the break position dropped, the first and last position of the
+        records filled from the joined pieces, and their number.
+
+    Returns
+    -------
+    list of str
+        One warning per join naming its records and the event crossed; empty where none.
+    """
+    notes = []
+    for position, first_record, last_record, count in crossed:
+        names = [event for event in events if position in event_breaks(index, [event])]
+        first, last = (f"{index[i]:%Y-%m-%d %H:%M}" for i in (first_record, last_record))
+        where = (f"1 NEE record at {first}" if count == 1
+                 else f"{count} NEE records from {first} to {last}")
+        notes.append(
+            f"events: {where} (interval starts) could not be filled from "
+            "their own piece of the record (too few measured records between the events or "
+            f"the record's edge around them); they were filled across {', '.join(names)} "
+            "from the neighbouring piece as well, rather than left unfilled")
     return notes
-
-
-def _pieces(n: int, breaks) -> list:
-    """Slices of the n records between the positions `breaks` (all of them where None)."""
-    edges = [0, *sorted(int(b) for b in (() if breaks is None else breaks)), n]
-    return [slice(start, stop) for start, stop in zip(edges[:-1], edges[1:], strict=True)
-            if stop > start]
 
 
 def clearness_index(rg, potential, *, min_potential=_CLEARNESS_MIN_POTENTIAL) -> np.ndarray:

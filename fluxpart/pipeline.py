@@ -389,8 +389,11 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
     verdict, findings = _clock_and_preflight(
         frame, site, config, interval, geometry, is_night, screens,
         {"time_marks": time_marks, "shift_minutes": shift_applied_minutes, "columns": columns})
+    # events outside the record (a mistyped year) are named before a run, as `run` names them
     return verdict, findings + [preflight.Finding("annual budget", note, False)
-                                for note in edges]
+                                for note in edges] + [
+        preflight.Finding("gap filling", note, False)
+        for note in gapfill.event_notes(frame.index, config.events)]
 
 
 def _refuse(verdict, findings, config) -> None:
@@ -745,6 +748,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     outcomes = {name: (*outcome[:3], _shifted(outcome[3], form.shift), outcome[4])
                 for name, outcome in outcomes.items()}
     too_calm, nee_measured, filled, night, day = outcomes["central"]
+    warnings.extend(gapfill.crossed_event_notes(frame.index, config.events,
+                                                filled.attrs.pop("events_crossed", [])))
     day_evidence = _daytime_driver_evidence(frame, screened, filled_drivers,
                                             outcomes["central"], is_night, temperature, delay,
                                             config)

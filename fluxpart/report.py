@@ -634,7 +634,8 @@ def _fill_events(config: dict) -> str:
         return ""
     return (f" Declared events ({', '.join(_setting_value(e) for e in events)}: a harvest, "
             "cut, fire or the like) cut the record into pieces; each NEE gap was filled from "
-            "the records of its own piece only.")
+            "the records of its own piece only, or, where its piece held too few, from the "
+            "neighbouring piece as well (named among the warnings).")
 
 
 def _methods(config: dict, has_random: bool) -> tuple[str, list[str]]:

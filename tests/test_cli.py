@@ -251,3 +251,18 @@ def test_netcdf_export_docs_do_not_promise_half_hourly_records():
 
     for doc in (Result.to_xarray.__doc__, to_xarray.__doc__):
         assert "half-hourly" not in doc and "30 or 60 min" in doc
+
+
+def test_check_names_an_event_outside_the_record(example, capsys):
+    """An event of a mistyped year (the example holds 2021) cuts no gap filling; `run`
+    warned about it, `check` (which lists every problem before a run) did not and
+    exited 0 (review23). Now it is listed and check exits 1; an event within the record
+    is no problem."""
+    text = example.read_text()
+    example.write_text(text + 'events = ["2012-07-20"]\n')
+    assert main(["check", str(example)]) == 1
+    out = capsys.readouterr().out
+    assert "gap filling: events: 2012-07-20 lies outside the record" in out
+    example.write_text(text + 'events = ["2021-07-20"]\n')
+    assert main(["check", str(example)]) == 0
+    assert "events:" not in capsys.readouterr().out

@@ -32,8 +32,10 @@ from fluxpart.gapfill import (
     QUALITY_NAMES,
     centred_rg_tolerance,
     clearness_index,
+    crossed_event_notes,
     driver_conditions,
     event_breaks,
+    event_notes,
     fill_drivers,
     fill_frame,
     local_linear_correction,
@@ -1168,15 +1170,52 @@ def test_outage_across_a_harvest_is_filled_from_its_own_side(seed):
     assert abs(errors["with"][0]) < 0.3 and abs(errors["with"][1]) < 0.3
 
 
-def test_an_event_on_the_records_first_stamp_is_not_called_outside_it():
-    """Round mistakes21: an event dated the record's first day was warned as "outside the
-    record ... check the year", though its date lies in the record; it cuts nothing since
-    no record precedes it (a record starting at an event's time lies after it)."""
-    from fluxpart.gapfill import event_notes
+@pytest.mark.parametrize("minutes", [30, 60])
+def test_a_piece_too_short_to_fill_itself_is_filled_across_its_event(minutes):
+    """Known-truth recovery (invented data): a harvest and the ploughing 3 h after it fall
+    within an outage, and an event 2 h before the record's end cuts off a few gap records.
+    The records between the two events, or after the last one, have no measured record of
+    their own piece: they were left unfilled (NaN), which made the year's NEE sum NaN
+    (review23). They are filled from the neighbouring piece (the bare ground after the
+    ploughing; for the last piece, the one before) and named in attrs; every gap that
+    fills within its own piece keeps its fill."""
+    index, measured, drivers, truth, outage, bare, _ = _harvested(0, minutes=minutes)
+    night = _night(drivers)
+    measured = measured.copy()
+    measured[-(120 // minutes):] = np.nan                   # the last 2 h missing
+    harvest = index[0] + pd.Timedelta(days=40, hours=10)    # within the outage (days 35-45)
+    events = [f"{harvest:%Y-%m-%d %H:%M}", f"{harvest + pd.Timedelta(hours=3):%Y-%m-%d %H:%M}",
+              f"{index[-1] - pd.Timedelta(minutes=60):%Y-%m-%d %H:%M}"]
+    breaks = event_breaks(index, events)
+    out = fill_marginal_module(measured, drivers, index, is_night=night, breaks=breaks)
+    between = (index >= harvest) & (index < harvest + pd.Timedelta(hours=3))
+    assert np.isfinite(out["value"]).all() and (out["quality"] >= 0).all()
+    # bare ground (respiration alone) between the events: the canopy's uptake would be
+    # up to -22 µmol m-2 s-1 at high light
+    assert abs(np.mean(out["value"].to_numpy()[between] - truth[between])) < 1.0
+    crossed = out.attrs["events_crossed"]
+    assert sorted(join[0] for join in crossed) == [breaks[1], breaks[2]]
+    first, last, count = next(join[1:] for join in crossed if join[0] == breaks[1])
+    assert (index[first], index[last], count) == (index[between][0], index[between][-1],
+                                                  between.sum())
+    assert all(isinstance(value, int) for join in crossed for value in join)
+    # the other gaps keep the fill of their own piece
+    alone = fill_marginal_module(measured[:breaks[0]], drivers.iloc[:breaks[0]],
+                                 index[:breaks[0]], is_night=night[:breaks[0]])
+    pd.testing.assert_frame_equal(out.iloc[:breaks[0]], alone, check_exact=True)
+    notes = crossed_event_notes(index, events, crossed)
+    assert len(notes) == 2 and events[1] in notes[0] and events[2] in notes[1]
+    assert f"from {harvest:%Y-%m-%d %H:%M} to" in notes[0]
+    assert all(events[0] not in note.split("across")[1] for note in notes)
 
-    index = _index(96)                                   # 2021-03-01 00:00 to 03-02 23:30
-    (note,) = event_notes(index, ["2021-03-01"])
-    assert "first record" in note and "check the year" not in note
-    (note,) = event_notes(index, ["2020-03-01"])
-    assert "outside the record" in note and "check the year" in note
-    assert event_notes(index, ["2021-03-02"]) == []
+
+def test_an_event_at_the_records_start_is_not_called_outside_it():
+    """A record begun at midnight of a harvest day (``events = ["2021-07-20"]``, the first
+    stamp 2021-07-20 00:00) holds the event at its first record: nothing to keep apart,
+    and the warning said it lay "outside the record (2021-07-20 00:00 to ...)" (review23).
+    A day before the record, or after its last record, is still named."""
+    index = _index(480, start="2021-07-20")
+    assert event_notes(index, ["2021-07-20"]) == []
+    assert event_breaks(index, ["2021-07-20"]).tolist() == []
+    notes = event_notes(index, ["2021-07-20", "2021-07-19", "2021-08-01"])
+    assert len(notes) == 1 and "2021-07-19, 2021-08-01 lie outside" in notes[0]

@@ -1182,5 +1182,7 @@ def test_methods_name_the_declared_events_only_where_the_result_has_them():
     declared = gap_filling_item({"events": ["2021-10-02", "2022-01-20T14:00"]})
     assert "Declared events (2021-10-02, 2022-01-20T14:00" in declared
     assert "its own piece only" in declared
+    # a gap its piece cannot fill is filled from the neighbouring piece (review23)
+    assert "from the neighbouring piece as well" in declared
     assert "events" not in gap_filling_item({}).lower()
     assert "events" not in gap_filling_item({"events": []}).lower()
