@@ -121,6 +121,8 @@ Meteorology 147, 209–232. doi:10.1016/j.agrformet.2007.08.011
 
 from __future__ import annotations
 
+from typing import NamedTuple
+
 import numpy as np
 import pandas as pd
 
@@ -251,6 +253,10 @@ _WIDENING_STEP_DAYS = 7
 _LAST_RESORT_NIGHT_DAYS = 14
 #: Upper bound on the elements of any (gaps × window records) temporary.
 _MAX_BLOCK_ELEMENTS = 1 << 20
+# Slope records of the blocks of a pass whose local-linear corrections are computed in
+# one call (the arithmetic is per gap, so the batching changes no bit; it saves the
+# per-call overhead of NumPy on small blocks within a few MB of temporaries).
+_CORRECTION_BATCH_RECORDS = 1 << 18
 #: Records per block of gaps sharing one window slice at a gap density of
 #: _BLOCK_DENSITY (gaps per record); sparser gaps get longer blocks. Tuned by the
 #: benchmark.
@@ -559,6 +565,7 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
                    for driver, tolerance in conditions] if local_linear else []
     wide_uppers = [driver[gaps] + _SLOPE_TOLERANCES * _at(tolerance, gaps)
                    for driver, tolerance in conditions] if local_linear else []
+    pending, pending_records = [], 0   # blocks waiting for their local-linear corrections
     for a, b in zip(starts, ends, strict=True):
         p, q = time_low[a], time_high[b - 1]
         if p == q:
@@ -578,6 +585,9 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
         found_mean = np.add.reduceat(picked, run_starts) / n_found
         residual = picked - np.repeat(found_mean, n_found)
         rows = np.flatnonzero(found) + a
+        mean[rows] = found_mean
+        count[rows] = n_found
+        spread[rows] = np.sqrt(np.add.reduceat(residual * residual, run_starts) / n_found)
         if local_linear:
             # the slope records of the gaps with donors: the same window, wider bounds
             wide_keys = keys[:1] + tables.keys(p, q, [x[a:b] for x in wide_lowers],
@@ -587,16 +597,59 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
             starts_w = np.cumsum(n_w) - n_w
             picked_w = usable_values[p:q][column_w]
             residual_w = picked_w - np.repeat(np.add.reduceat(picked_w, starts_w) / n_w, n_w)
-            donor_means = [_run_means(x[p:q][column], run_starts) for x in usable_drivers]
-            found_mean = found_mean + local_linear_correction(
-                residual_w, [x[p:q][column_w] for x in usable_drivers],
+            pending.append(_SlopeBlock(
+                rows, residual_w, n_w, [x[p:q][column_w] for x in usable_drivers],
+                [x[p:q][column] for x in usable_drivers], n_found,
                 [driver[gaps[rows]] for driver, _ in slope_drivers],
-                [_at(tolerance, gaps[rows]) for _, tolerance in slope_drivers],
-                starts_w, n_w, donor_means)
-        mean[rows] = found_mean
-        count[rows] = n_found
-        spread[rows] = np.sqrt(np.add.reduceat(residual * residual, run_starts) / n_found)
+                [_at(tolerance, gaps[rows]) for _, tolerance in slope_drivers]))
+            pending_records += residual_w.size
+            if pending_records >= _CORRECTION_BATCH_RECORDS:
+                mean[_joined_rows(pending)] += _batched_correction(pending)
+                pending, pending_records = [], 0
+    if pending:
+        mean[_joined_rows(pending)] += _batched_correction(pending)
     return mean, count, spread
+
+
+class _SlopeBlock(NamedTuple):
+    """What the local-linear correction needs of one block of gaps (those with donors)."""
+
+    rows: np.ndarray            # the gaps' positions in the pass
+    residual: np.ndarray        # slope records' values minus their gap's mean, gap by gap
+    slope_counts: np.ndarray    # slope records per gap
+    slope_drivers: list         # per driver, its value at each slope record
+    donor_drivers: list         # per driver, its value at each donor record
+    donor_counts: np.ndarray    # donor records per gap
+    gap_drivers: list           # per driver, its value at each gap
+    tolerances: list            # per driver, a scalar or its tolerance at each gap
+
+
+def _joined_rows(blocks):
+    return np.concatenate([block.rows for block in blocks])
+
+
+def _batched_correction(blocks) -> np.ndarray:
+    """:func:`local_linear_correction` of the gaps of several blocks in one call.
+
+    Every quantity of the correction is a sum over one gap's own records or an
+    element-wise operation on one gap's values, so joining the blocks' runs end to end
+    gives each gap the bits of a call per block.
+    """
+    def joined(per_block):
+        return [np.concatenate(parts) for parts in zip(*per_block, strict=True)]
+
+    slope_counts = np.concatenate([block.slope_counts for block in blocks])
+    donor_counts = np.concatenate([block.donor_counts for block in blocks])
+    donor_means = [_run_means(x, np.cumsum(donor_counts) - donor_counts)
+                   for x in joined([block.donor_drivers for block in blocks])]
+    # a scalar tolerance is the same in every block
+    tolerances = [parts[0] if np.ndim(parts[0]) == 0 else np.concatenate(parts)
+                  for parts in zip(*[block.tolerances for block in blocks], strict=True)]
+    return local_linear_correction(
+        np.concatenate([block.residual for block in blocks]),
+        joined([block.slope_drivers for block in blocks]),
+        joined([block.gap_drivers for block in blocks]), tolerances,
+        np.cumsum(slope_counts) - slope_counts, slope_counts, donor_means)
 
 
 def _run_means(x, run_starts):
