@@ -121,8 +121,6 @@ Meteorology 147, 209–232. doi:10.1016/j.agrformet.2007.08.011
 
 from __future__ import annotations
 
-from typing import NamedTuple
-
 import numpy as np
 import pandas as pd
 
@@ -565,7 +563,16 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
                    for driver, tolerance in conditions] if local_linear else []
     wide_uppers = [driver[gaps] + _SLOPE_TOLERANCES * _at(tolerance, gaps)
                    for driver, tolerance in conditions] if local_linear else []
-    pending, pending_records = [], 0   # blocks waiting for their local-linear corrections
+    # Blocks waiting for their local-linear corrections, computed in one call per
+    # _CORRECTION_BATCH_RECORDS slope records: (rows, donors, donor counts, slope
+    # records, slope counts), records as positions in ``usable``.
+    pending, pending_records = [], 0
+
+    def add_corrections(blocks):
+        rows, *runs = (np.concatenate(parts) for parts in zip(*blocks, strict=True))
+        mean[rows] += _corrections_of_runs(usable_values, usable_drivers, slope_drivers,
+                                           gaps[rows], *runs)
+
     for a, b in zip(starts, ends, strict=True):
         p, q = time_low[a], time_high[b - 1]
         if p == q:
@@ -594,62 +601,37 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
                                                [x[a:b] for x in wide_uppers])
             wide_keys = [(key, low[found], high[found]) for key, low, high in wide_keys]
             column_w, n_w = _similar_runs(wide_keys, n_found.size, width)
-            starts_w = np.cumsum(n_w) - n_w
-            picked_w = usable_values[p:q][column_w]
-            residual_w = picked_w - np.repeat(np.add.reduceat(picked_w, starts_w) / n_w, n_w)
-            pending.append(_SlopeBlock(
-                rows, residual_w, n_w, [x[p:q][column_w] for x in usable_drivers],
-                [x[p:q][column] for x in usable_drivers], n_found,
-                [driver[gaps[rows]] for driver, _ in slope_drivers],
-                [_at(tolerance, gaps[rows]) for _, tolerance in slope_drivers]))
-            pending_records += residual_w.size
+            pending.append((rows, p + column, n_found, p + column_w, n_w))
+            pending_records += column_w.size
             if pending_records >= _CORRECTION_BATCH_RECORDS:
-                mean[_joined_rows(pending)] += _batched_correction(pending)
+                add_corrections(pending)
                 pending, pending_records = [], 0
     if pending:
-        mean[_joined_rows(pending)] += _batched_correction(pending)
+        add_corrections(pending)
     return mean, count, spread
 
 
-class _SlopeBlock(NamedTuple):
-    """What the local-linear correction needs of one block of gaps (those with donors)."""
+def _corrections_of_runs(usable_values, usable_drivers, slope_drivers, gaps, donors,
+                         donor_counts, slopes, slope_counts) -> np.ndarray:
+    """:func:`local_linear_correction` of `gaps` from their donors and slope records.
 
-    rows: np.ndarray            # the gaps' positions in the pass
-    residual: np.ndarray        # slope records' values minus their gap's mean, gap by gap
-    slope_counts: np.ndarray    # slope records per gap
-    slope_drivers: list         # per driver, its value at each slope record
-    donor_drivers: list         # per driver, its value at each donor record
-    donor_counts: np.ndarray    # donor records per gap
-    gap_drivers: list           # per driver, its value at each gap
-    tolerances: list            # per driver, a scalar or its tolerance at each gap
-
-
-def _joined_rows(blocks):
-    return np.concatenate([block.rows for block in blocks])
-
-
-def _batched_correction(blocks) -> np.ndarray:
-    """:func:`local_linear_correction` of the gaps of several blocks in one call.
-
-    Every quantity of the correction is a sum over one gap's own records or an
-    element-wise operation on one gap's values, so joining the blocks' runs end to end
-    gives each gap the bits of a call per block.
+    ``usable_values`` and ``usable_drivers`` are the target and the slope drivers at the
+    usable records; ``slope_drivers`` the (driver, tolerance) pairs over all records;
+    ``donors`` and ``slopes`` positions in the usable records, each gap's one run
+    (``donor_counts``, ``slope_counts`` records per gap). Every quantity is a sum over
+    one gap's own run or an element-wise operation, so the gaps of several blocks
+    joined end to end get the bits of a call per block.
     """
-    def joined(per_block):
-        return [np.concatenate(parts) for parts in zip(*per_block, strict=True)]
-
-    slope_counts = np.concatenate([block.slope_counts for block in blocks])
-    donor_counts = np.concatenate([block.donor_counts for block in blocks])
-    donor_means = [_run_means(x, np.cumsum(donor_counts) - donor_counts)
-                   for x in joined([block.donor_drivers for block in blocks])]
-    # a scalar tolerance is the same in every block
-    tolerances = [parts[0] if np.ndim(parts[0]) == 0 else np.concatenate(parts)
-                  for parts in zip(*[block.tolerances for block in blocks], strict=True)]
+    slope_starts = np.cumsum(slope_counts) - slope_counts
+    picked = usable_values[slopes]
+    residual = picked - np.repeat(np.add.reduceat(picked, slope_starts) / slope_counts,
+                                  slope_counts)
+    donor_starts = np.cumsum(donor_counts) - donor_counts
     return local_linear_correction(
-        np.concatenate([block.residual for block in blocks]),
-        joined([block.slope_drivers for block in blocks]),
-        joined([block.gap_drivers for block in blocks]), tolerances,
-        np.cumsum(slope_counts) - slope_counts, slope_counts, donor_means)
+        residual, [x[slopes] for x in usable_drivers],
+        [driver[gaps] for driver, _ in slope_drivers],
+        [_at(tolerance, gaps) for _, tolerance in slope_drivers],
+        slope_starts, slope_counts, [_run_means(x[donors], donor_starts) for x in usable_drivers])
 
 
 def _run_means(x, run_starts):
