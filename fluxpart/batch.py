@@ -72,6 +72,12 @@ from .manifest import (
     seal_intact,
     shown_name,
 )
+from .network_layout import (  # noqa: F401 - also this module's names
+    NETWORK_DATASET,
+    NETWORK_DATASETS,
+    NETWORK_SEAL,
+    enclosing_network_dataset,
+)
 from .resultdir import check_folder, folder_lock
 from .schema import TIME_CONVENTION, units_for_table
 from .store import (
@@ -100,18 +106,10 @@ __all__ = [
     "same_name_sites",
 ]
 
-#: Folder of the network's annual dataset inside the batch output folder.
-NETWORK_DATASET = "network_annual"
-#: Folder of each network dataset (budget table -> folder) inside the batch output folder.
-NETWORK_DATASETS = {"annual": NETWORK_DATASET, "monthly": "network_monthly",
-                    "daily": "network_daily"}
 #: Index column of each budget table, the network dataset's sort key after ``site``.
 _PERIOD_COLUMNS = {"annual": "year", "monthly": "month", "daily": "date"}
 #: File of the failures table inside the batch output folder.
 FAILURES_FILE = "failures.parquet"
-#: The network tables' seal inside the batch output folder: written last, it names the SHA-256
-#: of every network file and the manifest seal of every site folder they were read from.
-NETWORK_SEAL = "network.json"
 _NETWORK_FORMAT = "fluxpart-network/1"
 
 _BATCH_KEYS = ("out", "sites")
@@ -1218,35 +1216,6 @@ def unlisted_site_folders(out, keys) -> list[str]:
     return [f"{len(found)} result folder(s) in {str(out)!r} belong to no site of this network "
             f"file ({shown}: an earlier batch's sites, since removed, renamed or re-keyed): "
             "kept, but left out of the network tables; delete them if they are not wanted"]
-
-
-def enclosing_network_dataset(path) -> Path | None:
-    """The network dataset folder of a batch output folder that holds `path`, or None.
-
-    A batch rewrites ``OUT/network_annual/``, ``OUT/network_monthly/`` and
-    ``OUT/network_daily/`` whole on every run, so anything else put there is deleted
-    without a word by the next batch, and until then ``pandas.read_parquet`` and
-    ``pyarrow.dataset`` of the folder (the documented readers, Hive-style partitions)
-    meet a file that is not Parquet. ``run``, ``report`` and ``export`` refuse to write
-    there.
-
-    Parameters
-    ----------
-    path : path-like
-        A file or folder about to be written (absolute or relative to the working
-        folder; symbolic links are resolved).
-
-    Returns
-    -------
-    pathlib.Path or None
-        The dataset folder (its parent holds ``network.json``), or None.
-    """
-    target = Path(path).absolute().resolve()
-    names = set(NETWORK_DATASETS.values())
-    for folder in (target, *target.parents):
-        if folder.name in names and (folder.parent / NETWORK_SEAL).is_file():
-            return folder
-    return None
 
 
 def _make_writable_out(out: Path) -> None:

@@ -136,9 +136,9 @@ def _enclosing_result(folder: Path) -> Path | None:
 
 def _refuse_network_dataset(option: str, given, path: Path) -> None:
     """Refuse to write `path` inside a batch's network dataset folder (rewritten whole by
-    every batch: see :func:`fluxpart.batch.enclosing_network_dataset`)."""
-    from .batch import enclosing_network_dataset
+    every batch: see :func:`fluxpart.network_layout.enclosing_network_dataset`)."""
     from .errors import OutputError
+    from .network_layout import enclosing_network_dataset
 
     dataset = enclosing_network_dataset(path)
     if dataset is not None:

@@ -254,6 +254,10 @@ _WIDENING_STEP_DAYS = 7
 _LAST_RESORT_NIGHT_DAYS = 14
 #: Upper bound on the elements of any (gaps × window records) temporary.
 _MAX_BLOCK_ELEMENTS = 1 << 20
+# Slope records of the blocks of a pass whose local-linear corrections are computed in
+# one call (the arithmetic is per gap, so the batching changes no bit; it saves the
+# per-call overhead of NumPy on small blocks within a few MB of temporaries).
+_CORRECTION_BATCH_RECORDS = 1 << 18
 #: Records per block of gaps sharing one window slice at a gap density of
 #: _BLOCK_DENSITY (gaps per record); sparser gaps get longer blocks. Tuned by the
 #: benchmark.
@@ -562,6 +566,16 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
                    for driver, tolerance in conditions] if local_linear else []
     wide_uppers = [driver[gaps] + _SLOPE_TOLERANCES * _at(tolerance, gaps)
                    for driver, tolerance in conditions] if local_linear else []
+    # Blocks waiting for their local-linear corrections, computed in one call per
+    # _CORRECTION_BATCH_RECORDS slope records: (rows, donors, donor counts, slope
+    # records, slope counts), records as positions in ``usable``.
+    pending, pending_records = [], 0
+
+    def add_corrections(blocks):
+        rows, *runs = (np.concatenate(parts) for parts in zip(*blocks, strict=True))
+        mean[rows] += _corrections_of_runs(usable_values, usable_drivers, slope_drivers,
+                                           gaps[rows], *runs)
+
     for a, b in zip(starts, ends, strict=True):
         p, q = time_low[a], time_high[b - 1]
         if p == q:
@@ -581,25 +595,46 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
         found_mean = np.add.reduceat(picked, run_starts) / n_found
         residual = picked - np.repeat(found_mean, n_found)
         rows = np.flatnonzero(found) + a
+        mean[rows] = found_mean
+        count[rows] = n_found
+        spread[rows] = np.sqrt(np.add.reduceat(residual * residual, run_starts) / n_found)
         if local_linear:
             # the slope records of the gaps with donors: the same window, wider bounds
             wide_keys = keys[:1] + tables.keys(p, q, [x[a:b] for x in wide_lowers],
                                                [x[a:b] for x in wide_uppers])
             wide_keys = [(key, low[found], high[found]) for key, low, high in wide_keys]
             column_w, n_w = _similar_runs(wide_keys, n_found.size, width)
-            starts_w = np.cumsum(n_w) - n_w
-            picked_w = usable_values[p:q][column_w]
-            residual_w = picked_w - np.repeat(np.add.reduceat(picked_w, starts_w) / n_w, n_w)
-            donor_means = [_run_means(x[p:q][column], run_starts) for x in usable_drivers]
-            found_mean = found_mean + local_linear_correction(
-                residual_w, [x[p:q][column_w] for x in usable_drivers],
-                [driver[gaps[rows]] for driver, _ in slope_drivers],
-                [_at(tolerance, gaps[rows]) for _, tolerance in slope_drivers],
-                starts_w, n_w, donor_means)
-        mean[rows] = found_mean
-        count[rows] = n_found
-        spread[rows] = np.sqrt(np.add.reduceat(residual * residual, run_starts) / n_found)
+            pending.append((rows, p + column, n_found, p + column_w, n_w))
+            pending_records += column_w.size
+            if pending_records >= _CORRECTION_BATCH_RECORDS:
+                add_corrections(pending)
+                pending, pending_records = [], 0
+    if pending:
+        add_corrections(pending)
     return mean, count, spread
+
+
+def _corrections_of_runs(usable_values, usable_drivers, slope_drivers, gaps, donors,
+                         donor_counts, slopes, slope_counts) -> np.ndarray:
+    """:func:`local_linear_correction` of `gaps` from their donors and slope records.
+
+    ``usable_values`` and ``usable_drivers`` are the target and the slope drivers at the
+    usable records; ``slope_drivers`` the (driver, tolerance) pairs over all records;
+    ``donors`` and ``slopes`` positions in the usable records, each gap's one run
+    (``donor_counts``, ``slope_counts`` records per gap). Every quantity is a sum over
+    one gap's own run or an element-wise operation, so the gaps of several blocks
+    joined end to end get the bits of a call per block.
+    """
+    slope_starts = np.cumsum(slope_counts) - slope_counts
+    picked = usable_values[slopes]
+    residual = picked - np.repeat(np.add.reduceat(picked, slope_starts) / slope_counts,
+                                  slope_counts)
+    donor_starts = np.cumsum(donor_counts) - donor_counts
+    return local_linear_correction(
+        residual, [x[slopes] for x in usable_drivers],
+        [driver[gaps] for driver, _ in slope_drivers],
+        [_at(tolerance, gaps) for _, tolerance in slope_drivers],
+        slope_starts, slope_counts, [_run_means(x[donors], donor_starts) for x in usable_drivers])
 
 
 def _run_means(x, run_starts):

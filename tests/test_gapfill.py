@@ -975,6 +975,59 @@ def test_local_linear_correction_of_an_exact_line():
     assert absurd[0] == 0.0
 
 
+def test_local_linear_corrections_of_joined_blocks_are_the_bits_of_one_call_per_block(
+        monkeypatch):
+    """The corrections of a pass's blocks are computed in one call (speed); each gap's
+    correction must keep the bits of a call per block, and agree with a ridge
+    least-squares fit by numpy.linalg.solve (LAPACK, a general-purpose library; ridge
+    estimator of Hoerl & Kennard 1970 (m)) gap by gap. Invented records with a
+    regressor missing at some records (in some blocks only) and a per-gap tolerance."""
+    rng = np.random.default_rng(11)
+    blocks, per_block = [], []
+    for block in range(4):
+        n_gaps = int(rng.integers(1, 6))
+        counts = rng.integers(2, 40, n_gaps)
+        starts = np.cumsum(counts) - counts
+        x = [rng.normal(20.0, 5.0, counts.sum()), rng.normal(8.0, 3.0, counts.sum())]
+        if block % 2:
+            x[1][rng.random(x[1].size) < 0.2] = np.nan
+        y = 0.4 * x[0] - 0.7 * np.nan_to_num(x[1], nan=8.0) + rng.normal(0, 1.0, x[0].size)
+        residual = y - np.repeat(np.add.reduceat(y, starts) / counts, counts)
+        at_gap = [rng.normal(22.0, 3.0, n_gaps), rng.normal(8.0, 2.0, n_gaps)]
+        tolerances = [2.5, rng.uniform(2.0, 6.0, n_gaps)]
+        donor_means = [rng.normal(20.0, 1.0, n_gaps), rng.normal(8.0, 1.0, n_gaps)]
+        blocks.append((residual, x, at_gap, tolerances, counts, donor_means))
+        per_block.append(local_linear_correction(residual, x, at_gap, tolerances, starts,
+                                                 counts, donor_means))
+        # gap by gap: the ridge fit in tolerance units, a missing value at its records' mean
+        for g in range(n_gaps):
+            run = slice(starts[g], starts[g] + counts[g])
+            scale = np.array([2.5, tolerances[1][g]])
+            design = np.column_stack([xj[run] for xj in x])
+            design = np.where(np.isnan(design), np.nanmean(design, axis=0), design)
+            design = (design - design.mean(axis=0)) / scale
+            gram = design.T @ design + 0.01 * counts[g] * np.eye(2)
+            offset = (np.array([at_gap[0][g], at_gap[1][g]])
+                      - np.array([donor_means[0][g], donor_means[1][g]])) / scale
+            c = offset @ np.linalg.solve(gram, design.T @ residual[run])
+            v = np.mean(residual[run] ** 2) * (offset @ np.linalg.solve(gram, offset))
+            assert per_block[-1][g] == pytest.approx(c ** 3 / (c * c + v), rel=1e-9, abs=1e-12)
+    residual, x, at_gap, tolerances, counts, donor_means = zip(*blocks, strict=True)
+    counts = np.concatenate(counts)
+    joined = local_linear_correction(
+        np.concatenate(residual), [np.concatenate(d) for d in zip(*x, strict=True)],
+        [np.concatenate(d) for d in zip(*at_gap, strict=True)],
+        [2.5, np.concatenate([t[1] for t in tolerances])], np.cumsum(counts) - counts,
+        counts, [np.concatenate(d) for d in zip(*donor_means, strict=True)])
+    assert joined.tobytes() == np.concatenate(per_block).tobytes()
+    # and a whole fill: one call per block against the default batches
+    index, measured, drivers, _, _ = _synthetic(np.random.default_rng(4), 4000, 30)
+    batched = fill_marginal_module(measured, drivers, index, is_night=_night(drivers))
+    monkeypatch.setattr("fluxpart.gapfill._CORRECTION_BATCH_RECORDS", 1)
+    one_by_one = fill_marginal_module(measured, drivers, index, is_night=_night(drivers))
+    pd.testing.assert_frame_equal(batched, one_by_one, check_exact=True)
+
+
 def test_positive_definite_solve_matches_numpy():
     """The element-wise solve of the local-linear fit against numpy.linalg.solve (LAPACK,
     a general-purpose library) on random symmetric positive definite systems of 1-4
