@@ -692,7 +692,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     filled_drivers = gapfill.fill_drivers(
         screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days,
         interpolation_hours=config.gapfill_interpolation_hours)
-    conditions = gapfill.driver_conditions(filled_drivers)
+    conditions = gapfill.driver_conditions(filled_drivers, soil=True)
     if config.gapfill_clearness_tolerance > 0:
         conditions["clearness"] = gapfill.clearness_index(
             conditions["rg"].to_numpy(), geometry["potential_radiation"].to_numpy())
