@@ -1272,3 +1272,76 @@ def test_an_event_at_the_records_start_is_not_called_outside_it():
     assert event_breaks(index, ["2021-07-20"]).tolist() == []
     notes = event_notes(index, ["2021-07-20", "2021-07-19", "2021-08-01"])
     assert len(notes) == 1 and "2021-07-19, 2021-08-01 lie outside" in notes[0]
+
+
+# ------------------------------------------------ soil temperature as a night regressor
+
+
+def _calm_nights(seed=0, days=60, minutes=30):
+    """Invented known-truth nights: respiration follows soil temperature (Q10 of 2, common
+    practice); on calm nights (a third, drawn at random) the air near the ground cools
+    4 K below its windy-night level for the same soil temperature (radiative cooling
+    under a stable layer), and those nights' NEE is missing, as the u* filter removes
+    them. Day records (bright, NEE -10) take no part."""
+    rng = np.random.default_rng(seed)
+    per_day = 1440 // minutes
+    index = _index(days * per_day, minutes)
+    day_number = np.arange(days * per_day) // per_day
+    hour = np.tile(np.arange(per_day) * minutes / 60.0, days)
+    night = (hour < 6) | (hour >= 20)
+    calm_day = rng.random(days) < 1 / 3
+    calm = calm_day[day_number] & night
+    soil = 12 + 3 * np.sin(2 * np.pi * day_number / 30) + np.repeat(rng.normal(0, 1.5, days),
+                                                                    per_day)
+    air = soil - 1.0 - 4.0 * calm + rng.normal(0, 0.3, soil.size)
+    truth = np.where(night, 3.0 * 2.0 ** ((soil - 10) / 10), -10.0)
+    measured = truth + rng.normal(0, 0.5, soil.size)
+    measured[calm] = np.nan
+    drivers = pd.DataFrame({"rg": np.where(night, 0.0, 600.0), "tair": air,
+                            "vpd": np.where(night, 2.0, 12.0)}, index=index)
+    return index, measured, drivers, truth, night, calm, soil
+
+
+@pytest.mark.parametrize("seed", [0, 1])
+def test_soil_temperature_corrects_calm_night_fills(seed):
+    """Known-truth recovery (invented data): calm nights' gaps filled from windy nights
+    of the same air temperature, whose soil was 4 K cooler, run low; with ``tsoil`` as a
+    night regressor of the local-linear fill they are moved by the flux's slope on soil
+    temperature and land near the truth. Not a donor condition: the donors stay those
+    of the air temperature, so without ``tsoil`` every fill is as before."""
+    index, measured, drivers, truth, night, calm, soil = _calm_nights(seed)
+    plain = fill_marginal_module(measured, drivers, index, is_night=night)
+    with_soil = fill_marginal_module(measured, drivers.assign(tsoil=soil), index,
+                                     is_night=night)
+    errors = {name: float(np.mean(fill["value"].to_numpy()[calm] - truth[calm]))
+              for name, fill in (("plain", plain), ("soil", with_soil))}
+    assert errors["plain"] < -0.4                    # 4 K of soil at Q10 2: about -1
+    assert abs(errors["soil"]) < abs(errors["plain"]) / 2     # -0.85 -> -0.36 at seed 1
+    # day gaps, and the donors chosen, are the same
+    pd.testing.assert_series_equal(plain["method"], with_soil["method"])
+    day = ~night & np.isnan(measured)
+    np.testing.assert_array_equal(plain["value"].to_numpy()[day],
+                                  with_soil["value"].to_numpy()[day])
+    # the published mean takes no regressor
+    means = [fill_marginal_module(measured, frame, index, is_night=night,
+                                  estimate="donor_mean")["value"]
+             for frame in (drivers, drivers.assign(tsoil=soil))]
+    pd.testing.assert_series_equal(*means)
+
+
+def test_driver_conditions_give_soil_temperature_only_when_asked():
+    """``driver_conditions(..., soil=True)`` adds ``tsoil`` where the filled drivers have
+    it (quality measured, A or interpolated, else NaN); the default keeps the three
+    similarity conditions of Reichstein et al. (2005)."""
+    rng = np.random.default_rng(5)
+    index, _, drivers, _, _ = _synthetic(rng, 20 * 48, 30)
+    frame = drivers.assign(tsoil=drivers["tair"] - 2.0)
+    filled = fill_drivers(frame)
+    assert list(driver_conditions(filled).columns) == ["rg", "tair", "vpd"]
+    conditions = driver_conditions(filled, soil=True)
+    assert list(conditions.columns) == ["rg", "tair", "vpd", "tsoil"]
+    good = np.isin(filled["tsoil_fill_quality"].to_numpy(), (0, 1, 4)) | np.isfinite(
+        frame["tsoil"].to_numpy())
+    assert np.isfinite(conditions["tsoil"].to_numpy()[good]).all()
+    assert list(driver_conditions(fill_drivers(drivers), soil=True).columns) == [
+        "rg", "tair", "vpd"]
