@@ -181,6 +181,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
     FLUXES,
     TRUTH_OF,
+    flux_scores,
     misses,
     print_table,
     summary_cells,
@@ -642,12 +643,7 @@ def score(sp: Spec, result, truth):
         start, end = pd.Timestamp(a["period_start"]), pd.Timestamp(a["period_end"])
         part = truth[(truth.index >= start) & (truth.index < end)]
         row = {"site_year": f"{sp.key}:{year}", "complete": bool(a["complete"])}
-        for f in FLUXES:
-            est, true = float(a[f]), float(part[TRUTH_OF[f]].sum() * factor)
-            lo, hi = float(a[f + "_ci95_low"]), float(a[f + "_ci95_high"])
-            row.update({f: est, f + "_true": true, f + "_err": est - true,
-                        f + "_rel": 100 * (est - true) / abs(true), f + "_in": lo <= true <= hi,
-                        f + "_halfwidth": (hi - lo) / 2})
+        row.update(flux_scores(a, part, factor))
         sub = series.reindex(part.index)
         nights = part.night.to_numpy()
         found = float(np.nanmedian(sub["ustar_threshold"].to_numpy()[nights]))

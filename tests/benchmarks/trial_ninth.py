@@ -245,6 +245,7 @@ from trial_scoring import (  # noqa: E402
     TRUTH_OF,
     check_and_run,
     finish,
+    flux_scores,
     fluxpart_cli,
     fmt,
     misses,
@@ -865,13 +866,7 @@ def score(site: Site, truth: pd.DataFrame, out: Path, check):
         row = {"site_year": f"{site.key}:{a['year']}", "run": site.key, "year": a["year"],
                "complete": bool(a["complete"]), "check_rc": check.returncode,
                "period": f"{start:%Y-%m-%d}..{end:%Y-%m-%d}"}
-        for f in FLUXES:
-            est = float(a[f])
-            true = float(part[TRUTH_OF[f]].sum() * factor)
-            lo, hi = float(a[f + "_ci95_low"]), float(a[f + "_ci95_high"])
-            row.update({f: est, f + "_true": true, f + "_err": est - true,
-                        f + "_rel": 100 * (est - true) / abs(true), f + "_in": lo <= true <= hi,
-                        f + "_halfwidth": (hi - lo) / 2})
+        row.update(flux_scores(a, part, factor))
         # the result's records: truth averaged to the result's interval
         rtruth = part.resample(pd.Timedelta(seconds=rstep)).mean(numeric_only=True)
         rnight = rtruth.night.to_numpy() > 0.5

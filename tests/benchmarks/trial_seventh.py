@@ -210,6 +210,7 @@ from trial_scoring import (  # noqa: E402
     TRUTH_OF,
     check_and_run,
     finish,
+    flux_scores,
     fmt,
     print_flux_table,
     print_warnings_and_misses,
@@ -809,13 +810,7 @@ def score(site: Site, truth: pd.DataFrame, out: Path, check, warnings):
         row = {"site_year": f"{site.key}:{a['year']}", "run": site.key, "year": a["year"],
                "complete": bool(a["complete"]), "check_rc": check.returncode,
                "warnings": warnings, "period": f"{start:%Y-%m-%d}..{end:%Y-%m-%d}"}
-        for f in FLUXES:
-            est = float(a[f])
-            true = float(part[TRUTH_OF[f]].sum() * factor)
-            lo, hi = float(a[f + "_ci95_low"]), float(a[f + "_ci95_high"])
-            row.update({f: est, f + "_true": true, f + "_err": est - true,
-                        f + "_rel": 100 * (est - true) / abs(true), f + "_in": lo <= true <= hi,
-                        f + "_halfwidth": (hi - lo) / 2})
+        row.update(flux_scores(a, part, factor))
         night = part[part.night]
         planted = float(np.median(night.thr))
         found = float(np.median(series["ustar_threshold"].reindex(night.index)))

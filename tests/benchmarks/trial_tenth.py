@@ -205,6 +205,7 @@ from trial_scoring import (  # noqa: E402
     TRUTH_OF,
     check_and_run,
     finish,
+    flux_scores,
     fmt,
     misses,
     print_flux_table,
@@ -831,13 +832,7 @@ def score(site: Site, truth: pd.DataFrame, out: Path, check):
         row = {"site_year": f"{site.key}:{a['year']}", "run": site.key, "year": a["year"],
                "complete": bool(a["complete"]), "check_rc": check.returncode,
                "period": f"{start:%Y-%m-%d}..{end:%Y-%m-%d}"}
-        for f in FLUXES:
-            est = float(a[f])
-            true = float(part[TRUTH_OF[f]].sum() * factor)
-            lo, hi = float(a[f + "_ci95_low"]), float(a[f + "_ci95_high"])
-            row.update({f: est, f + "_true": true, f + "_err": est - true,
-                        f + "_rel": 100 * (est - true) / abs(true), f + "_in": lo <= true <= hi,
-                        f + "_halfwidth": (hi - lo) / 2})
+        row.update(flux_scores(a, part, factor))
         night = part.night.to_numpy()
         sub = series.reindex(part.index)
         planted = float(np.median(part.thr.to_numpy()[night]))
