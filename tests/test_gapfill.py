@@ -1374,3 +1374,21 @@ def test_night_soil_regressor_equals_oracle(seed, minutes, n, gap_fraction, soil
     expected = oracle_fill_marginal(measured, drivers, index, is_night=is_night,
                                     max_window_days=max_window_days)
     _assert_same_fill(got, expected)
+
+
+def test_fill_frame_takes_soil_temperature_as_the_pipeline_does():
+    """Known-truth recovery (invented calm nights, ``_calm_nights``): ``fill_frame`` of a
+    frame with ``tsoil`` fills the night gaps as :func:`fluxpart.process` does, with soil
+    temperature as the local-linear regressor (``driver_conditions(..., soil=True)``), so
+    the calm nights' fills land nearer the truth than without it; the frame without
+    ``tsoil`` is filled as before."""
+    index, measured, drivers, truth, night, calm, soil = _calm_nights(1)
+    frame = drivers.assign(nee=measured, tsoil=soil)
+    out = fill_frame(frame, is_night=night)
+    expected = fill_marginal_module(measured, driver_conditions(fill_drivers(frame), soil=True),
+                                    index, is_night=night)
+    np.testing.assert_array_equal(out["nee_filled"], expected["value"])
+    without = fill_frame(frame.drop(columns="tsoil"), is_night=night)
+    error = {name: float(np.mean(table["nee_filled"].to_numpy()[calm] - truth[calm]))
+             for name, table in (("soil", out), ("plain", without))}
+    assert abs(error["soil"]) < abs(error["plain"]) / 2
