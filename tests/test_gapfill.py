@@ -1392,3 +1392,20 @@ def test_fill_frame_takes_soil_temperature_as_the_pipeline_does():
     error = {name: float(np.mean(table["nee_filled"].to_numpy()[calm] - truth[calm]))
              for name, table in (("soil", out), ("plain", without))}
     assert abs(error["soil"]) < abs(error["plain"]) / 2
+
+
+def test_driver_conditions_leave_a_poorly_filled_soil_temperature_out():
+    """A soil temperature filled from other days (quality B or C: a 10-day outage) is no
+    night regressor (NaN), as a driver so filled is no condition (``driver_conditions``,
+    Notes); measured, interpolated and quality-A values are kept."""
+    rng = np.random.default_rng(6)
+    index, _, drivers, _, _ = _synthetic(rng, 40 * 48, 30, driver_gap_fraction=0.0)
+    soil = drivers["tair"].rolling(8, min_periods=1).mean().to_numpy() + 1.0
+    soil[15 * 48:25 * 48] = np.nan
+    filled = fill_drivers(drivers.assign(tsoil=soil))
+    quality = filled["tsoil_fill_quality"].to_numpy()
+    kept = driver_conditions(filled, soil=True)["tsoil"].to_numpy()
+    poor = np.isin(quality, (2, 3))
+    assert poor.sum() > 5 * 48
+    assert np.isnan(kept[poor]).all()
+    assert np.array_equal(kept[~poor], filled["tsoil_filled"].to_numpy()[~poor])
