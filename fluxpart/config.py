@@ -240,7 +240,10 @@ class Config:
         Default ``"auto"``: Lloyd & Taylor (1994) fitted soil respiration to soil
         temperature, while some ecosystems' respiration follows air temperature,
         and at night NEE is Reco, so the night data decide (on 8 generated
-        site-years it picked the planted temperature every time).
+        site-years it picked the planted temperature every time). Whatever the
+        choice, a ``tsoil`` column also moves the night NEE gap fills (a regressor of
+        the local-linear fill since 0.22.0, `gapfill_estimate`): ``"tair"`` does not
+        leave the soil column unused.
     respiration_form : str
         Form of the nighttime method's central Reco: ``"average"`` (default, since
         0.10.0) weights the Lloyd–Taylor fit and a refit with a constant Q10 by the

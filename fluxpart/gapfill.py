@@ -1715,12 +1715,14 @@ def fill_frame(frame, *, target="nee", is_night=None, donors="separate_day_night
 
     Notes
     -----
-    The flux is filled with the conditions of :func:`driver_conditions`.
+    The flux is filled with the conditions of :func:`driver_conditions`, with soil
+    temperature where `frame` has ``tsoil`` (the night fills' regressor), as
+    :func:`fluxpart.process` fills NEE.
     """
     _driver_columns(frame, [target, *_DRIVERS], "frame")
     drivers = fill_drivers(frame, rg_tolerance=rg_tolerance, max_window_days=max_window_days,
                            interpolation_hours=interpolation_hours)
-    flux = fill_marginal(frame[target], driver_conditions(drivers), frame.index,
+    flux = fill_marginal(frame[target], driver_conditions(drivers, soil=True), frame.index,
                          is_night=is_night, donors=donors, rg_tolerance=rg_tolerance,
                          tair_tolerance=tair_tolerance, vpd_tolerance=vpd_tolerance,
                          max_window_days=max_window_days, min_donors=min_donors,

@@ -615,15 +615,27 @@ def _setting_value(value) -> str:
     return str(value)
 
 
-def _fill_estimate(config: dict) -> str:
+def _fill_estimate(config: dict, soil: bool = False) -> str:
     """How an NEE fill of the similarity steps was made, as the result's config says (a
-    result written before 0.21.0 has no ``gapfill_estimate``: its fills were means)."""
+    result written before 0.21.0 has no ``gapfill_estimate``: its fills were means);
+    `soil`: the night fills also regressed on soil temperature (a result of 0.22.0 or
+    later with a ``tsoil`` column, :func:`_soil_regressor`)."""
     if config.get("gapfill_estimate", "donor_mean") == "local_linear":
+        night = (" (for night gaps also on soil temperature, which chooses no donor: calm "
+                 "nights cool the air, not the soil)" if soil else "")
         return ("Each NEE fill of the similarity steps is the similar records' mean moved by "
-                "the flux's local slope on Rg, Tair and VPD times their offset from the gap "
-                "(a local-linear estimate, our refinement: a gap at the edge of its donors' "
-                "conditions is not filled at their level).")
+                "the flux's local slope on Rg, Tair and VPD" + night + " times their offset "
+                "from the gap (a local-linear estimate, our refinement: a gap at the edge of "
+                "its donors' conditions is not filled at their level).")
     return "Each fill is the mean of the similar records."
+
+
+def _soil_regressor(written: Written) -> bool:
+    """Whether the result's night NEE fills regressed on soil temperature: it has a
+    ``tsoil`` column and was written by fluxpart 0.22.0 or later (the manifest's version)."""
+    version = str(written.manifest.get("versions", {}).get("fluxpart", ""))
+    release = tuple(int(part) for part in re.findall(r"\d+", version)[:2])
+    return "tsoil_filled" in written.timeseries.columns and release >= (0, 22)
 
 
 def _fill_events(config: dict) -> str:
@@ -638,7 +650,7 @@ def _fill_events(config: dict) -> str:
             "neighbouring piece as well (named among the warnings).")
 
 
-def _methods(config: dict, has_random: bool) -> tuple[str, list[str]]:
+def _methods(config: dict, has_random: bool, soil: bool = False) -> tuple[str, list[str]]:
     cited = ["papale2006", "reichstein2005", "lloyd1994", "lasslop2010", "kopp2011"]
     method = config.get("ustar_method", "moving_point")
     if method == "moving_point":
@@ -664,7 +676,7 @@ def _methods(config: dict, has_random: bool) -> tuple[str, list[str]]:
         f"u* threshold: {ustar}. Night records below the threshold are removed.",
         "Gap filling of NEE and the drivers by marginal distribution sampling (Reichstein et "
         "al. 2005, appendix): similar Rg, Tair and VPD within widening time windows, then the "
-        f"mean diurnal course; fill quality classes A, B, C. {_fill_estimate(config)}"
+        f"mean diurnal course; fill quality classes A, B, C. {_fill_estimate(config, soil)}"
         f"{_fill_events(config)}",
         "Nighttime partitioning: Lloyd–Taylor respiration (Lloyd & Taylor 1994); E0 per year "
         f"from the night data with a free Rref in each {_setting_value(config.get('e0_window_days'))}"
@@ -895,7 +907,7 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
                  _site_table(written, interval) + _provenance(manifest), "details-provenance"),
     ]
     config = written.config
-    methods, cited = _methods(config, has_random)
+    methods, cited = _methods(config, has_random, _soil_regressor(written))
     references = "".join(f"<li>{_e(_REFERENCES[key])}</li>" for key in cited)
     extra_caution = ("" if caution == CAUTION
                      else f'<p class="caution">{_e(caution)}</p>')

@@ -92,7 +92,7 @@ def oracle_local_linear(picked, donor_drivers, gap_drivers, tolerances, donor_me
 
 def oracle_fill(values, per_day, hour_records, conditions, radiation_conditions,
                 max_window_days=140.0, min_donors=3, is_night=None, fixed=None,
-                local_linear=False, radiation_regressors=()):
+                local_linear=False, radiation_regressors=(), night_regressors=()):
     """Fill one series gap by gap; return value, method, window, count, std, quality arrays.
 
     ``conditions``: list of (driver array, tolerance) for step 1 or None;
@@ -102,7 +102,9 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_conditions,
     they are, method 4 and quality 4; ``local_linear``: steps 1 and 2 add
     :func:`oracle_local_linear` to the donors' mean, its slopes fitted on the records
     within 3 tolerances of the gap; step 2 also on ``radiation_regressors`` ((driver,
-    tolerance) pairs that do not choose its donors).
+    tolerance) pairs that do not choose its donors); with ``is_night``, a night gap
+    also on ``night_regressors`` (soil temperature) in step 1 and in step 2 within ±7
+    days, after the others.
     """
     y = np.asarray(values, dtype=float)
     n = y.size
@@ -166,6 +168,8 @@ def oracle_fill(values, per_day, hour_records, conditions, radiation_conditions,
                 shift = 0.0
                 if local_linear and picked.size:
                     extra = list(radiation_regressors) if step == 2 and k <= 7 else []
+                    if is_night is not None and is_night[t] and (step == 1 or k <= 7):
+                        extra += list(night_regressors)
                     slope_drivers = [driver for driver, _ in pairs + extra]
                     means = [np.nanmean(d[lo:hi][ok]) if (~np.isnan(d[lo:hi][ok])).any()
                              else np.nan for d in slope_drivers]
@@ -207,7 +211,9 @@ def oracle_fill_marginal(target, drivers, index, *, is_night=None, rg_tolerance=
     reaches down to the night threshold and no further, so that it stays centred on
     the gap's own Rg, but it is never narrower than ±night_rg_threshold nor wider than
     ±rg_tolerance. With ``clearness`` (one value per record), steps 1 and 2 also require
-    it within ±clearness_tolerance.
+    it within ±clearness_tolerance. With a ``tsoil`` column in ``drivers`` and separate
+    classes, the night gaps' local-linear fills also regress on it (in units of
+    ``tair_tolerance``).
     """
     minutes = _spacing_minutes(index)
     per_day, hour_records = 1440 // minutes, 60 // minutes
@@ -226,11 +232,14 @@ def oracle_fill_marginal(target, drivers, index, *, is_night=None, rg_tolerance=
     if clearness is not None:
         clear = (np.asarray(clearness, dtype=float), clearness_tolerance)
         conditions, radiation = conditions + [clear], radiation + [clear]
+    soil = ([(np.asarray(drivers["tsoil"], dtype=float), tair_tolerance)]
+            if "tsoil" in drivers.columns else [])
     out = oracle_fill(target, per_day, hour_records, conditions, radiation,
                       max_window_days, min_donors,
                       None if is_night is None else np.asarray(is_night, dtype=bool),
                       local_linear=estimate == "local_linear",
-                      radiation_regressors=[(tair, tair_tolerance), (vpd, vpd_tolerance)])
+                      radiation_regressors=[(tair, tair_tolerance), (vpd, vpd_tolerance)],
+                      night_regressors=soil)
     names = ("value", "method", "window_days", "count", "std", "quality")
     return pd.DataFrame(dict(zip(names, out, strict=True)), index=index)
 

@@ -1345,3 +1345,67 @@ def test_driver_conditions_give_soil_temperature_only_when_asked():
     assert np.isfinite(conditions["tsoil"].to_numpy()[good]).all()
     assert list(driver_conditions(fill_drivers(drivers), soil=True).columns) == [
         "rg", "tair", "vpd"]
+
+
+@settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(seed=st.integers(0, 2**32 - 1), minutes=st.sampled_from([30, 60]),
+       n=st.integers(300, 2500), gap_fraction=st.floats(0.05, 0.8),
+       soil_gap_fraction=st.sampled_from([0.0, 0.3, 0.95, 1.0]),
+       max_window_days=st.sampled_from([7.0, 30.0, 140.0]),
+       soil=st.sampled_from(["lagged", "constant", "deep"]))
+def test_night_soil_regressor_equals_oracle(seed, minutes, n, gap_fraction, soil_gap_fraction,
+                                            max_window_days, soil):
+    """With ``tsoil`` in the drivers, fill_marginal and the per-gap oracle (which regresses
+    a night gap's records on soil temperature by numpy.linalg.lstsq on the ridge-augmented
+    system, Hoerl & Kennard 1970 (m)) agree, for a soil column with a damped cycle, a
+    constant one, a deep probe's slow one, missing at random up to everywhere."""
+    rng = np.random.default_rng(seed)
+    index, measured, drivers, _, _ = _synthetic(rng, n, minutes, gap_fraction, 0.05, 5.0)
+    air = drivers["tair"].interpolate(limit_direction="both").to_numpy()
+    days = np.arange(n) * minutes / 1440.0
+    tsoil = {"lagged": pd.Series(air).rolling(8, min_periods=1).mean().to_numpy() + 1.0,
+             "constant": np.full(n, 11.0),
+             "deep": 10.0 + 3.0 * np.sin(2 * np.pi * days / 365.0)}[soil]
+    tsoil = np.where(rng.random(n) < soil_gap_fraction, np.nan, tsoil)
+    drivers = drivers.assign(tsoil=tsoil)
+    is_night = _night(drivers)
+    got = fill_marginal_module(measured, drivers, index, is_night=is_night,
+                               max_window_days=max_window_days)
+    expected = oracle_fill_marginal(measured, drivers, index, is_night=is_night,
+                                    max_window_days=max_window_days)
+    _assert_same_fill(got, expected)
+
+
+def test_fill_frame_takes_soil_temperature_as_the_pipeline_does():
+    """Known-truth recovery (invented calm nights, ``_calm_nights``): ``fill_frame`` of a
+    frame with ``tsoil`` fills the night gaps as :func:`fluxpart.process` does, with soil
+    temperature as the local-linear regressor (``driver_conditions(..., soil=True)``), so
+    the calm nights' fills land nearer the truth than without it; the frame without
+    ``tsoil`` is filled as before."""
+    index, measured, drivers, truth, night, calm, soil = _calm_nights(1)
+    frame = drivers.assign(nee=measured, tsoil=soil)
+    out = fill_frame(frame, is_night=night)
+    expected = fill_marginal_module(measured, driver_conditions(fill_drivers(frame), soil=True),
+                                    index, is_night=night)
+    np.testing.assert_array_equal(out["nee_filled"], expected["value"])
+    without = fill_frame(frame.drop(columns="tsoil"), is_night=night)
+    error = {name: float(np.mean(table["nee_filled"].to_numpy()[calm] - truth[calm]))
+             for name, table in (("soil", out), ("plain", without))}
+    assert abs(error["soil"]) < abs(error["plain"]) / 2
+
+
+def test_driver_conditions_leave_a_poorly_filled_soil_temperature_out():
+    """A soil temperature filled from other days (quality B or C: a 10-day outage) is no
+    night regressor (NaN), as a driver so filled is no condition (``driver_conditions``,
+    Notes); measured, interpolated and quality-A values are kept."""
+    rng = np.random.default_rng(6)
+    index, _, drivers, _, _ = _synthetic(rng, 40 * 48, 30, driver_gap_fraction=0.0)
+    soil = drivers["tair"].rolling(8, min_periods=1).mean().to_numpy() + 1.0
+    soil[15 * 48:25 * 48] = np.nan
+    filled = fill_drivers(drivers.assign(tsoil=soil))
+    quality = filled["tsoil_fill_quality"].to_numpy()
+    kept = driver_conditions(filled, soil=True)["tsoil"].to_numpy()
+    poor = np.isin(quality, (2, 3))
+    assert poor.sum() > 5 * 48
+    assert np.isnan(kept[poor]).all()
+    assert np.array_equal(kept[~poor], filled["tsoil_filled"].to_numpy()[~poor])

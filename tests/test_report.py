@@ -1186,3 +1186,30 @@ def test_methods_name_the_declared_events_only_where_the_result_has_them():
     assert "from the neighbouring piece as well" in declared
     assert "events" not in gap_filling_item({}).lower()
     assert "events" not in gap_filling_item({"events": []}).lower()
+
+
+def test_methods_name_the_soil_regressor_of_night_fills_only_where_it_was_used():
+    """A result of 0.22.0 or later with a soil temperature had its night NEE fills moved by
+    their slope on it (``fluxpart.gapfill.fill_marginal``); the methods say so there only:
+    not for a record without ``tsoil``, a result written before 0.22.0, or the donors'
+    mean of Reichstein et al. (2005, appendix A)."""
+    from types import SimpleNamespace
+
+    def written(version, columns):
+        return SimpleNamespace(manifest={"versions": {"fluxpart": version}},
+                               timeseries=pd.DataFrame(columns=columns))
+
+    assert report._soil_regressor(written("0.22.0", ["nee_filled", "tsoil_filled"]))
+    assert report._soil_regressor(written("1.0.3", ["tsoil_filled"]))
+    assert not report._soil_regressor(written("0.21.4", ["nee_filled", "tsoil_filled"]))
+    assert not report._soil_regressor(written("0.22.0", ["nee_filled"]))
+    assert not report._soil_regressor(written("", ["tsoil_filled"]))
+
+    def gap_filling_item(config, soil):
+        listed, _ = report._methods(config, False, soil)
+        return next(item for item in listed.split("<li>") if item.startswith("Gap filling"))
+
+    local = {"gapfill_estimate": "local_linear"}
+    assert "soil temperature" in gap_filling_item(local, True)
+    assert "soil temperature" not in gap_filling_item(local, False)
+    assert "soil temperature" not in gap_filling_item({"gapfill_estimate": "donor_mean"}, True)

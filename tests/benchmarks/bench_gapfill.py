@@ -86,8 +86,8 @@ def _night(frame: pd.DataFrame) -> np.ndarray:
 
 def _oracle_frame(frame: pd.DataFrame, is_night) -> pd.DataFrame:
     drivers = oracle_fill_drivers(frame)
-    return oracle_fill_marginal(frame["nee"], gapfill.driver_conditions(drivers), frame.index,
-                                is_night=is_night)
+    return oracle_fill_marginal(frame["nee"], gapfill.driver_conditions(drivers, soil=True),
+                                frame.index, is_night=is_night)
 
 
 def _driver_accuracy(seeds=range(6), gaps_per_year=300) -> None:

@@ -25,20 +25,27 @@ REL_TARGET = {"gpp_nighttime": 5.0, "reco_nighttime": 5.0, "gpp_daytime": 8.0,
 
 
 def flux_scores(annual_row, truth_part, factor) -> dict:
-    """Each flux's estimate, truth, error (also in % of |truth|), whether the stated 95 %
-    interval holds the truth, and the interval's half-width, for one budget year.
+    """Each flux's estimate, truth, error (also in % of |truth|; NaN where the truth is 0),
+    whether the stated 95 % interval holds the truth, and the interval's half-width, for one
+    budget year.
 
     `annual_row`: a row of ``annual.parquet``; `truth_part`: the true fluxes of its records
     [umol m-2 s-1] (columns as ``TRUTH_OF``); `factor`: g C m-2 per umol m-2 s-1 record.
+    A truth with a missing value, or no record, for the year raises ``ValueError``: its sum
+    would score the year against part of its truth.
     """
     row = {}
     for f in FLUXES:
+        values = np.asarray(truth_part[TRUTH_OF[f]], dtype=float)
+        if values.size == 0 or not np.isfinite(values).all():
+            raise ValueError(f"truth of {TRUTH_OF[f]}: {values.size} records, "
+                             f"{int((~np.isfinite(values)).sum())} of them missing")
         est = float(annual_row[f])
         true = float(truth_part[TRUTH_OF[f]].sum() * factor)
         lo, hi = float(annual_row[f + "_ci95_low"]), float(annual_row[f + "_ci95_high"])
         row.update({f: est, f + "_true": true, f + "_err": est - true,
-                    f + "_rel": 100 * (est - true) / abs(true), f + "_in": lo <= true <= hi,
-                    f + "_halfwidth": (hi - lo) / 2})
+                    f + "_rel": 100 * (est - true) / abs(true) if true else float("nan"),
+                    f + "_in": lo <= true <= hi, f + "_halfwidth": (hi - lo) / 2})
     return row
 
 

@@ -233,6 +233,7 @@ from trial_scoring import (  # noqa: E402
     TRUTH_OF,
     check_and_run,
     finish,
+    flux_scores,
     fmt,
     print_flux_table,
     print_warnings_and_misses,
@@ -1038,16 +1039,7 @@ def score(site: Site, truth: pd.DataFrame, out: Path, check, warnings):
         row = {"site_year": f"{site.key}:{a['year']}", "run": site.key, "year": a["year"],
                "complete": bool(a["complete"]), "check_rc": check.returncode,
                "warnings": warnings, "period": f"{start:%Y-%m-%d}..{end:%Y-%m-%d}"}
-        for f in FLUXES:
-            est = float(a[f])
-            true = float(part[TRUTH_OF[f]].sum() * factor)
-            lo, hi = float(a[f + "_ci95_low"]), float(a[f + "_ci95_high"])
-            row[f] = est
-            row[f + "_true"] = true
-            row[f + "_err"] = est - true
-            row[f + "_rel"] = 100 * (est - true) / abs(true)
-            row[f + "_in"] = lo <= true <= hi
-            row[f + "_halfwidth"] = (hi - lo) / 2
+        row.update(flux_scores(a, part, factor))
         night = part[part.night]
         planted = float(np.median(night.thr))
         # the threshold fluxpart applied to the year's night records (timeseries.parquet)

@@ -1,0 +1,53 @@
+"""The known-truth trials' shared scoring (tests/benchmarks/trial_scoring.py)."""
+import sys
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+sys.path.insert(0, str(Path(__file__).resolve().parent / "benchmarks"))
+from trial_scoring import FLUXES, TRUTH_OF, flux_scores  # noqa: E402
+
+GC_PER_UMOL = 12.011e-6  # g C per umol (standard atomic weight of carbon (m))
+
+
+def _annual(estimate, low, high):
+    row = {}
+    for f in FLUXES:
+        row.update({f: estimate, f + "_ci95_low": low, f + "_ci95_high": high})
+    return pd.Series(row)
+
+
+def _truth(values):
+    return pd.DataFrame({name: np.asarray(values, dtype=float)
+                         for name in set(TRUTH_OF.values())})
+
+
+def test_flux_scores_follow_their_definitions():
+    """Error = estimate − truth, relative error = 100 × error / |truth| (common practice),
+    inside = the truth within the interval's bounds, half-width = (high − low) / 2;
+    the truth is the records' sum × g C per record (1800 s × 12.011e-6 g C per µmol)."""
+    factor = 1800 * GC_PER_UMOL
+    truth = _truth([1.0, 2.0, 3.0])
+    true = 6.0 * factor
+    row = flux_scores(_annual(true + 0.01, true - 0.02, true + 0.03), truth, factor)
+    for f in FLUXES:
+        assert row[f + "_true"] == pytest.approx(true, rel=1e-12)
+        assert row[f + "_err"] == pytest.approx(0.01, rel=1e-9)
+        assert row[f + "_rel"] == pytest.approx(100 * 0.01 / true, rel=1e-9)
+        assert row[f + "_in"] and row[f + "_halfwidth"] == pytest.approx(0.025, rel=1e-9)
+    outside = flux_scores(_annual(true, true + 0.01, true + 0.03), truth, factor)
+    assert not any(outside[f + "_in"] for f in FLUXES)
+
+
+def test_flux_scores_of_a_zero_truth_and_a_truth_with_holes():
+    """A truth summing to 0 has no relative error (NaN; it raised ZeroDivisionError and
+    stopped the trial); a truth with a missing record, or none, is refused rather than
+    summed without it (pandas skips NaN in a sum)."""
+    row = flux_scores(_annual(0.5, -1.0, 1.0), _truth([1.0, -1.0]), 1.0)
+    assert all(np.isnan(row[f + "_rel"]) and row[f + "_in"] for f in FLUXES)
+    with pytest.raises(ValueError, match="1 of them missing"):
+        flux_scores(_annual(0.5, -1.0, 1.0), _truth([1.0, np.nan, 2.0]), 1.0)
+    with pytest.raises(ValueError, match="0 records"):
+        flux_scores(_annual(0.5, -1.0, 1.0), _truth([]), 1.0)
