@@ -909,3 +909,14 @@ def test_an_unshaded_sensor_is_not_named(seed, clear_share):
     quiet."""
     rg, potential, index = _sky(seed, clear_share)
     assert shaded_rg(rg, potential, index) is None
+
+
+def test_a_shaded_rg_is_a_preflight_warning():
+    """The preflight lists the shaded sensor as a warning (not fatal), naming the column
+    (known-truth recovery on the invented sky above, Erbs et al. (1982) (m) diffuse
+    part)."""
+    rg, potential, index = _sky(2, 0.5, (14.5, 17.5))
+    screened = pd.DataFrame({"rg": rg}, index=index)
+    findings = [f for f in _column_faults(screened, potential, 30, {"rg": "Rs_down"})
+                if f.stage == "input (rg shaded)"]
+    assert len(findings) == 1 and not findings[0].fatal and "'Rs_down'" in findings[0].message
