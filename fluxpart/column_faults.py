@@ -62,7 +62,7 @@ __all__ = ["GAPLESS_DAYS", "SOIL_RANGE_RATIO", "censored_nee", "delayed_tair",
            "delayed_tair_in_a_year",
            "dew_point_as_tair", "flag_as_measurement", "gapless_nee", "interpolated_nee",
            "months_rising_with_light", "nee_day_shift", "nee_lag", "storage_in_turbulent_flux",
-           "swapped_temperatures", "tair_lag", "values_written_twice",
+           "shaded_rg", "swapped_temperatures", "tair_lag", "values_written_twice",
            "vapour_pressure_as_vpd", "zero_coded_temperature"]
 
 #: Ratio of the soil column's to the air column's median daily temperature range above
@@ -1664,3 +1664,141 @@ def storage_in_turbulent_flux(turbulent, storage, stamps, columns=None) -> str |
             f"{slope:+.2f} ± {spread:.2f}), so adding the storage column counts the store "
             "twice; if the column is NEE (turbulent flux + storage), remove the storage "
             "mapping")
+
+
+#: Lowest potential radiation of the records the shading check compares [W m-2]; our
+#: choice: above it the sun stands some 12° or more above the horizon at mid-latitudes,
+#: where a clear sky lets through well over half of the top-of-atmosphere irradiance
+#: (Campbell & Norman 1998, ch. 11 (m)).
+_SHADE_MIN_POTENTIAL = 200.0
+#: Records each half of the day needs in a cell (a month at one distance from solar
+#: noon) for the cell to be judged; our choice: two thirds of a month's days.
+_SHADE_MIN_RECORDS = 20
+#: Percentiles of the clearness index (Rg over potential radiation) compared in a cell
+#: [%]; our choice: the 90th stands for its clear sky, and the 75th must be dimmed as
+#: much, so that a cloudy month whose few clear records all fell in one half (its 90th
+#: percentile a matter of chance, its 75th alike in both halves) is not read as a shadow.
+_SHADE_PERCENTILES = (90.0, 75.0)
+#: Ratio of the dimmer half's clear-sky clearness to the brighter half's at or below
+#: which a cell counts as shaded [1]; our choice: morning haze or dew on the dome dims a
+#: clear morning by a tenth or two, a shadow on the sensor by half or more (diffuse light
+#: alone is 10-20 % of a clear sky's global radiation; Campbell & Norman 1998, ch. 11
+#: (m)).
+_SHADE_RATIO = 0.6
+#: Months in which the same time from solar noon, of one half of the day, is shaded, for
+#: the column to be named; our choice: an obstacle shades the same hours for months,
+#: while the clear records of a cloudy month fall in one half by chance at scattered
+#: times (on invented two-state skies with 3-5 % of the days clear, three months were
+#: reached by chance in 4 of 300 years, four in none).
+_SHADE_MIN_MONTHS = 4
+
+
+def shaded_rg(rg, potential, stamps, columns=None) -> str | None:
+    """A message where Rg is shaded for part of the day (morning or afternoon), or None.
+
+    Parameters
+    ----------
+    rg : array_like
+        Global radiation of each record [W m-2], NaN where missing.
+    potential : array_like
+        Potential (top-of-atmosphere) radiation of each record [W m-2], interval means.
+    stamps : pandas.DatetimeIndex
+        Interval starts, local standard time, evenly spaced.
+    columns : dict, optional
+        Canonical name -> file column, to name the column in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where mornings and afternoons reach the same clear sky.
+
+    Notes
+    -----
+    The sun's path is symmetric about solar noon: a record some time before noon and one
+    as long after it see the sun at the same elevation through the same air mass, so their
+    clear-sky clearness index (Rg / potential radiation) is the same (Iqbal 1983 (m);
+    Campbell & Norman 1998, ch. 11 (m)). Each day's records are counted from the record of
+    highest potential radiation; in each month and at each distance from it (potential
+    radiation 200 W m-2 or more), the 90th percentile of the clearness of the morning's
+    and of the afternoon's records stands for their clear sky (and the 75th must agree,
+    so that the few clear records of a cloudy month do not decide). A tree, a mast or the tower
+    shading the sensor for some hours dims that half's clear sky by half or more there;
+    named where one time from noon falls to 0.6 or less of the other half's, at both
+    percentiles, in at least four months. The daytime light response then reads the shaded hours' uptake at
+    too little light (on the invented grassland example, Rg a quarter from 15 to 18 h
+    local: daytime GPP +44 g C m-2, silent before). A clock hours off makes the halves
+    differ too; the clock check names that. A horizon (a mountain) shades the canopy as
+    well as the sensor: the text says that such a shade is real.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed., Springer, ch. 11.
+
+    Iqbal, M. (1983). An Introduction to Solar Radiation. Academic Press.
+    """
+    rg = np.asarray(rg, dtype=float)
+    potential = np.asarray(potential, dtype=float)
+    index = pd.DatetimeIndex(stamps)
+    if rg.shape != potential.shape or rg.size != len(index) or rg.size < 3:
+        return None
+    days = np.asarray(index.normalize().asi8)
+    starts = np.flatnonzero(np.concatenate([[True], days[1:] != days[:-1]]))
+    sizes = np.diff(np.concatenate([starts, [days.size]]))
+    noon = np.maximum.reduceat(potential, starts)
+    position = np.arange(rg.size) - np.repeat(starts, sizes)
+    noon_position = np.repeat([int(np.argmax(potential[a:a + n])) for a, n in
+                               zip(starts, sizes, strict=True)], sizes)
+    offset = position - noon_position
+    usable = (np.isfinite(rg) & (potential >= _SHADE_MIN_POTENTIAL) & (offset != 0)
+              & (np.repeat(noon, sizes) > 0.0))
+    if not usable.any():
+        return None
+    with np.errstate(divide="ignore", invalid="ignore"):
+        clearness = rg / potential
+    month = np.asarray(index.year * 12 + index.month - 1)
+    cells = pd.DataFrame({"month": month[usable], "distance": np.abs(offset[usable]),
+                          "afternoon": offset[usable] > 0, "clearness": clearness[usable]})
+    grouped = cells.groupby(["month", "distance", "afternoon"])["clearness"]
+    upper, lower = (grouped.quantile(share / 100.0) for share in _SHADE_PERCENTILES)
+    table = pd.DataFrame({"count": grouped.size(), "clear": upper, "lower": lower}).unstack()
+    table = table.dropna()
+    table = table[(table["count"][False] >= _SHADE_MIN_RECORDS)
+                  & (table["count"][True] >= _SHADE_MIN_RECORDS)]
+    if table.empty:
+        return None
+    shaded = {}
+    for name, dim_half in (("morning", False), ("afternoon", True)):
+        with np.errstate(divide="ignore", invalid="ignore"):
+            ratio = table["clear"][dim_half] / table["clear"][not dim_half]
+            lower_ratio = table["lower"][dim_half] / table["lower"][not dim_half]
+        hit = ratio[(table["clear"][not dim_half] > 0.0) & (table["lower"][not dim_half] > 0.0)
+                    & (ratio <= _SHADE_RATIO) & (lower_ratio <= _SHADE_RATIO)]
+        shaded[name] = hit
+    def recurring(hit):
+        """Months shaded at the distance from noon shaded in the most months."""
+        return int(hit.groupby(level=1).size().max()) if hit.size else 0
+
+    name = max(shaded, key=lambda key: recurring(shaded[key]))
+    hit = shaded[name]
+    if recurring(hit) < _SHADE_MIN_MONTHS:
+        return None
+    months = hit.index.get_level_values(0).nunique()
+    column = (columns or {}).get("rg", "rg")
+    other = "afternoon" if name == "morning" else "morning"
+    sign = -1 if name == "morning" else 1
+    dim_cells = cells[(cells["afternoon"] == (name == "afternoon"))].set_index(
+        ["month", "distance"]).index.isin(hit.index)
+    clock = (index.hour + index.minute / 60.0)[usable][
+        (offset[usable] * sign > 0)][dim_cells]
+    hours = (f", mostly between {np.percentile(clock, 10):.1f} and "
+             f"{np.percentile(clock, 90):.1f} h local standard time" if clock.size else "")
+    return (f"rg (column {column!r}): on clear days the {name} reaches a median "
+            f"{float(np.median(hit)):.2f} of the {other}'s clearness at the same height of "
+            f"the sun (Rg over potential radiation, 90th percentile of each month and hour "
+            f"from solar noon; {hit.size} such times of day in {months} months{hours}), where a "
+            "clear sky is symmetric about solar noon: the sensor looks shaded for part of "
+            "the day (a tree, a mast or the tower), so the daytime light response reads those "
+            "hours' uptake at too little light; mount the sensor clear of obstacles or mark "
+            "the shaded records missing in a copy of the file (a horizon that shades the "
+            "canopy as well is real and can stay)")

@@ -55,6 +55,8 @@ exactly 0 and back by jumps (a code)
 NEE present and accepted in every record  input (nee gapless)                 no
 for 60 days (filled or unscreened)
 tair fitting VPD and RH as the dew point  input (tair dew point)              no
+Rg of clear mornings and afternoons at    input (rg shaded)                   no
+the same sun height far apart (shaded)
 NEE of one sign only next to 0, by day    input (nee one sign)                no
 or at night (values of one sign removed)
 a column repeating its value in every     input (tair twice, ...)             no
@@ -92,6 +94,7 @@ from .column_faults import (
     months_rising_with_light,
     nee_day_shift,
     nee_lag,
+    shaded_rg,
     swapped_temperatures,
     tair_lag,
     values_written_twice,
@@ -373,6 +376,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                         screened.index, names)
         if text:
             findings.append(Finding("input (nee sign)", text, False))
+    if "rg" in screened.columns and potential is not None:
+        text = shaded_rg(screened["rg"].to_numpy(dtype=float), potential, screened.index,
+                         names)
+        if text:
+            findings.append(Finding("input (rg shaded)", text, False))
     if "nee" in screened.columns:
         text = interpolated_nee(screened["nee"].to_numpy(dtype=float), interval_minutes,
                                 screened.index, names)

@@ -70,6 +70,11 @@ _IMPLAUSIBLE_MIN_COUNT = 5
 _ZERO_MIN_COUNT = 48
 _ZERO_SPIKE_RATIO = 10.0
 _ZERO_MAX_STEP_SHARE = 0.1
+# A non-zero NEE value judged as an undeclared missing code by the same rule must also
+# stand in at least this many separate runs of records (our choice: a stuck analyser
+# repeats its last value in one run, which the preflight's stuck-sensor check names; a
+# logger writes its code into every gap, and a year has dozens of NEE gaps).
+_CODE_MIN_RUNS = 5
 # NEE sign check (our choice): the release tail of warm, bright records must reach more
 # than this many times as far as the uptake tail (95th vs 5th percentile; vegetated
 # sites show 0.0-0.4, reversed files 2.8 and more on the generated sites of
@@ -358,6 +363,65 @@ def _zero_code_message(converted: dict, columns: dict, interval_minutes: int, mi
                 "for a missing value: add 0 to [input] missing (or list nee in [input] "
                 "accept_units to keep the zeros as measured)"), None
     return None, f"nee: {found}; if 0 marks missing values, add 0 to [input] missing"
+
+
+def _nonzero_code_message(converted: dict, units: dict, columns: dict,
+                          interval_minutes: int, missing=()):
+    """A non-zero NEE value written so often that only a missing-value code explains it.
+
+    The zero-code rule of :func:`_zero_code_message` applied to the most frequent non-zero
+    value inside NEE's plausible range (one outside it is named by the range check): a flux
+    is continuous, so at the file's resolution (the smallest difference
+    between distinct values) one value is about as frequent as the values one step either
+    side of it. A logger's code inside NEE's plausible range (``-99.99``, ``-99.9``, ``-99``,
+    ``-9.99``) passes the range check and enters the fits as a measured uptake; in a year
+    of gaps it stands in many separate runs (:data:`_CODE_MIN_RUNS`), where a stuck
+    analyser repeats its value in one. Returns (refusal, warning).
+
+    References
+    ----------
+    Falge, E., et al. (2001). Gap filling strategies for defensible annual sums of net
+    ecosystem exchange. Agric. For. Meteorol. 107, 43-69 (m): NEE records have gaps over
+    30-40 % of a year, so a code written into them is a large share of the record.
+    """
+    nee = converted.get("nee")
+    if nee is None:
+        return None, None
+    finite = np.isfinite(nee)
+    present = nee[finite]
+    nonzero = present[present != 0.0]
+    if nonzero.size == 0:
+        return None, None
+    code, count = most_repeated(nonzero)
+    limits = READER_VARIABLES["nee"]
+    if not limits.minimum <= code <= limits.maximum:
+        return None, None     # outside the range: the range check names the code
+    if count < _ZERO_MIN_COUNT or count <= 0.01 * present.size:
+        return None, None
+    levels = np.unique(present)
+    step = float(np.min(np.diff(levels))) if levels.size > 1 else np.inf
+    if not np.isfinite(step) or step > _ZERO_MAX_STEP_SHARE * float(np.median(np.abs(nonzero))):
+        return None, None     # rounded too coarsely for the spread: cannot tell
+    tolerance = step * 1e-6
+    beside = int(np.count_nonzero(np.abs(np.abs(present - code) - step) <= tolerance))
+    if count <= _ZERO_SPIKE_RATIO * max(beside / 2.0, 1.0):
+        return None, None
+    at_code = np.zeros(nee.size + 1, dtype=bool)
+    at_code[:-1] = finite & (nee == code)
+    runs = int(np.count_nonzero(at_code[:-1] & ~np.concatenate([[False], at_code[:-2]])))
+    if runs < _CODE_MIN_RUNS:
+        return None, None
+    shown = (f"{code:g}" if "nee" not in units
+             else f"read as {code:g} µmol m-2 s-1 (the file's value under its unit)")
+    found = (f"the value {shown} occurs {count} times in {runs} separate runs of records "
+             f"({count / present.size:.1%} of the present values), against {beside} at "
+             f"±{step:.3g}, the file's resolution, beside it; a flux does not repeat one "
+             "value that often")
+    if _enough_days(present.size, interval_minutes):
+        return (f"column {columns['nee']!r} (nee): {found}: it looks like the logger's code "
+                f"for a missing value: add it to [input] missing (now {list(missing)}), or "
+                "list nee in [input] accept_units to keep the values as measured"), None
+    return None, f"nee: {found}; if it marks missing values, add it to [input] missing"
 
 
 def _reversed_sign(nee: np.ndarray, night: np.ndarray, active: np.ndarray):
@@ -918,6 +982,13 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
             refusals["nee"] = refuse
         if warn:
             warnings.append(warn)
+        if "nee" not in refusals:
+            refuse, warn = _nonzero_code_message(converted, units, columns, interval_minutes,
+                                                 missing)
+            if refuse:
+                refusals["nee"] = refuse
+            if warn:
+                warnings.append(warn)
         if "nee" not in refusals:
             refuse, warn = _nee_message(converted, units, columns, interval_minutes, potential)
             if refuse:

@@ -28,6 +28,7 @@ from fluxpart.column_faults import (
     months_rising_with_light,
     nee_day_shift,
     nee_lag,
+    shaded_rg,
     storage_in_turbulent_flux,
     swapped_temperatures,
     tair_lag,
@@ -859,3 +860,63 @@ def test_a_noisy_storage_column_beside_its_turbulent_flux_is_quiet(seed):
     assert storage_in_turbulent_flux(turbulent, noisy, stamps) is None
     message = storage_in_turbulent_flux(turbulent + noisy, noisy, stamps)
     assert message is not None and "already holds" in message
+
+
+def _sky(seed, clear_share, shaded_hours=None):
+    """An invented year of half-hourly Rg at 47 N under a two-state sky: clear records at
+    a transmittance of 0.75 (Campbell & Norman 1998, ch. 11 (m)), overcast ones at 0.3,
+    each day clear with probability `clear_share` and its records switching state at
+    random (clouds without a time of day). Where `shaded_hours` (local start hours) are
+    given, the sensor sees only the diffuse part there: the diffuse fraction of Erbs et
+    al. (1982) (m) of the clearness index."""
+    from fluxpart.solar import potential_radiation
+
+    rng = np.random.default_rng(seed)
+    index = pd.date_range("2021-01-01", periods=365 * 48, freq="30min")
+    potential = potential_radiation(index, 47.0, 8.0, 1.0, 30)
+    day_clear = np.repeat(rng.random(365) < clear_share, 48)
+    clear = np.where(rng.random(index.size) < 0.85, day_clear, ~day_clear)
+    rg = potential * np.where(clear, 0.75, 0.3) * rng.uniform(0.95, 1.05, index.size)
+    if shaded_hours is not None:
+        k = rg / np.where(potential > 0, potential, np.nan)
+        diffuse = np.where(k <= 0.22, 1 - 0.09 * k, np.where(
+            k <= 0.8, 0.9511 - 0.1604 * k + 4.388 * k**2 - 16.638 * k**3 + 12.336 * k**4,
+            0.165))
+        hour = index.hour + index.minute / 60
+        inside = (hour >= shaded_hours[0]) & (hour < shaded_hours[1]) & (potential > 0)
+        rg = np.where(inside, rg * diffuse, rg)
+    return rg, potential, index
+
+
+@pytest.mark.parametrize("hours, half", [((14.5, 17.5), "afternoon"), ((6.0, 9.0), "morning")])
+def test_rg_shaded_for_part_of_the_day_is_named(hours, half):
+    """Known-truth recovery: the direct beam blocked for three hours a day (a tree or a
+    mast); the sun's path is symmetric about solar noon (Iqbal 1983 (m)), so the shaded
+    half's clear sky falls to about half of the other's at the same sun height."""
+    rg, potential, index = _sky(1, 0.5, hours)
+    text = shaded_rg(rg, potential, index, {"rg": "SW_in"})
+    assert text is not None and "'SW_in'" in text and f"the {half} reaches" in text
+    first, last = (float(v) for v in re.search(
+        r"between ([\d.]+) and ([\d.]+) h", text).groups())
+    assert hours[0] - 0.5 <= first and last <= hours[1]
+
+
+@pytest.mark.parametrize("seed", range(4))
+@pytest.mark.parametrize("clear_share", [0.1, 0.5, 0.9])
+def test_an_unshaded_sensor_is_not_named(seed, clear_share):
+    """The same skies without the shadow, from mostly overcast (a tenth of the days
+    clear: the few clear records of a month may all fall in one half) to mostly clear:
+    quiet."""
+    rg, potential, index = _sky(seed, clear_share)
+    assert shaded_rg(rg, potential, index) is None
+
+
+def test_a_shaded_rg_is_a_preflight_warning():
+    """The preflight lists the shaded sensor as a warning (not fatal), naming the column
+    (known-truth recovery on the invented sky above, Erbs et al. (1982) (m) diffuse
+    part)."""
+    rg, potential, index = _sky(2, 0.5, (14.5, 17.5))
+    screened = pd.DataFrame({"rg": rg}, index=index)
+    findings = [f for f in _column_faults(screened, potential, 30, {"rg": "Rs_down"})
+                if f.stage == "input (rg shaded)"]
+    assert len(findings) == 1 and not findings[0].fatal and "'Rs_down'" in findings[0].message

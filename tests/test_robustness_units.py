@@ -68,6 +68,32 @@ def test_zero_written_for_missing_refused(fen_year):
     assert "add 0 to [input] missing" in message
 
 
+@pytest.mark.parametrize("code", [-99.9, -99.99, -99.0, -9.99])
+def test_a_missing_code_inside_the_range_is_refused(fen_year, code):
+    """Known-truth recovery on an invented fen year: a second logger program writes its
+    gaps as a code inside NEE's plausible range [-100, 100] µmol m-2 s-1 (codes such as
+    -99.9 are common practice (m)), from July on. The range check lets it through and
+    the fits read an uptake; refused naming the column, the value and [input] missing.
+    A flux is continuous (the zero-code rule), so no value repeats 10 times more often
+    than its neighbours at the file's resolution."""
+    nee = np.round(fen_year.frame["nee"].to_numpy(float), 3)
+    second_half = np.arange(nee.size) >= nee.size // 2
+    nee[second_half & ~np.isfinite(nee)] = code
+    message = _nee_refusal(nee, fen_year)
+    assert message is not None and "'co2_flux' (nee)" in message
+    assert f"the value {code:g} occurs" in message and "add it to [input] missing" in message
+
+
+def test_a_stuck_value_in_one_run_is_not_called_a_missing_code(fen_year):
+    """An analyser repeating one value for a week is one run of records: a stuck sensor
+    (the preflight's stuck-sensor check names it), not a logger's code in every gap
+    (common practice)."""
+    nee = np.round(fen_year.frame["nee"].to_numpy(float), 3)
+    per_day = int(round(86400 / (fen_year.frame.index[1] - fen_year.frame.index[0]).seconds))
+    nee[100 * per_day:107 * per_day] = -3.217
+    assert _nee_refusal(nee, fen_year) is None
+
+
 @pytest.mark.parametrize("seed", [0, 4])
 def test_net_radiation_mapped_as_rg_refused(seed):
     """Net radiation mapped as rg (negative all night) was read as global radiation, only
