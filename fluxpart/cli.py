@@ -501,6 +501,9 @@ def _parser() -> argparse.ArgumentParser:
     batch.add_argument("--workers", type=int, help="workers of the local cluster")
     batch.add_argument("--out", type=_path, help="output folder (default: from SITES.toml)")
     batch.add_argument("--force", action="store_true", help="rerun sites already up to date")
+    batch.add_argument("--site-time-limit", type=float, metavar="MINUTES",
+                       help="minutes a site may run on its worker before it is taken for hung "
+                            "and failed (default: [batch] site_time_limit, else 240)")
     batch.add_argument("--quiet", action="store_true", help="no progress output")
     batch.set_defaults(handler=_lazy("batch", "command_batch"))
 

@@ -10,6 +10,7 @@ cannot be removed or renamed onto (``EBUSY``) (Linux man-pages rename(2), rmdir(
 
 import os
 import shutil
+import threading
 
 import pytest
 from bundles import make_bundle
@@ -132,3 +133,82 @@ def test_a_folder_replaced_at_every_read_is_refused_not_returned_mixed(bundle, m
     with pytest.raises(InputFileError, match="kept changing"):
         resultdir.read_folder(bundle / "out")
 
+
+
+# --------------------------------------------------------------------------- batch
+
+def _network(root, names, extra=""):
+    """Network file over tiny bundles (5 days: only their failure or hang matters here)."""
+    for name in names:
+        make_bundle(root / name, records=24 * 2 * 5, name=f"{name}.toml")
+    sites = ", ".join(f'"{n}/{n}.toml"' for n in names)
+    (root / "SITES.toml").write_text(f'[batch]\nsites = [{sites}]\nout = "res"\n{extra}',
+                                     encoding="utf-8")
+    return root / "SITES.toml"
+
+
+_RELEASE = threading.Event()
+
+
+def _hanging_site(key, config, directory, *, force=False):
+    """A batch task standing in for run_site: the site 'hung' waits (up to 60 s)."""
+    from fluxpart import batch
+
+    if key == "hung":
+        _RELEASE.wait(60)
+        raise RuntimeError("the hang ended: the limit did not stop the batch")
+    return batch._failure({"key": key, "config": config, "directory": directory},
+                          ValueError("not computed in this test"))
+
+
+def test_a_hung_site_fails_after_the_site_time_limit(tmp_path, monkeypatch):
+    """A site that never ends (an input on a network share that stopped answering) kept
+    the batch waiting for ever: there was no per-site limit. Known truth on invented
+    sites: a site held for 60 s fails after a 0.04-min (2.4 s) limit, named with the
+    limit, while the other site is unaffected; the batch ends long before the hang."""
+    import time
+
+    import distributed
+
+    from fluxpart import batch
+
+    real = batch.run_site
+    sites = _network(tmp_path, ["hung", "quick"])
+    monkeypatch.setattr(batch, "run_site", _hanging_site)
+    _RELEASE.clear()
+    try:
+        with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=False,
+                                      dashboard_address=None) as cluster:
+            began = time.monotonic()
+            report = batch.run_batch(sites, scheduler=cluster.scheduler_address,
+                                     site_time_limit=0.04)
+            took = time.monotonic() - began
+            _RELEASE.set()                     # the cluster's thread may end now
+    finally:
+        _RELEASE.set()
+        monkeypatch.setattr(batch, "run_site", real)
+    outcomes = {o.key: o for o in report.outcomes}
+    assert outcomes["hung"].status == "failed" and outcomes["hung"].kind == "input"
+    assert outcomes["hung"].error == "SiteTimeLimitError"
+    assert "0.04 min" in outcomes["hung"].message
+    assert outcomes["quick"].message == "not computed in this test"
+    assert 2.4 <= took < 30
+
+
+def test_the_site_time_limit_is_a_setting_with_a_default(tmp_path, capsys):
+    """``[batch] site_time_limit`` [min] is read, defaults to four hours and is refused
+    (one line, exit 2) where it is no positive number."""
+    from fluxpart import batch
+
+    sites = _network(tmp_path, ["alder"])
+    assert batch.read_sites_file(sites).site_time_limit == 240.0
+    sites = _network(tmp_path, ["alder"], "site_time_limit = 90\n")
+    assert batch.read_sites_file(sites).site_time_limit == 90.0
+    for bad in ("0", "-5", '"2h"', "nan", "true"):
+        sites = _network(tmp_path, ["alder"], f"site_time_limit = {bad}\n")
+        assert main(["batch", str(sites), "--quiet"]) == 2
+        assert "site_time_limit" in _one_error_line(capsys)
+    assert not (tmp_path / "res").exists()
+    sites = _network(tmp_path, ["alder"])
+    assert main(["batch", str(sites), "--quiet", "--site-time-limit", "0"]) == 2
+    assert "--site-time-limit" in _one_error_line(capsys)
