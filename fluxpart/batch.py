@@ -950,7 +950,10 @@ def _client(scheduler, workers, sites: int | None = None):
                 cluster = LocalCluster(n_workers=workers or _DEFAULT_WORKERS,
                                        threads_per_worker=1,
                                        processes=True, host="127.0.0.1", dashboard_address=None,
-                                       silence_logs=logging.ERROR,
+                                       # the scheduler's own ERROR lines (a worker
+                                       # that died, keys it could not gather) are
+                                       # said per site by the batch summary
+                                       silence_logs=logging.CRITICAL,
                                        # no dashboard, but the scheduler still serves HTTP
                                        # (health, metrics): on a free port, not on 8787, which
                                        # another cluster or batch may hold (Dask then warned
@@ -1341,8 +1344,8 @@ def _run_tasks(client, sites, out: Path, force: bool, progress,
             try:
                 outcome = future.result()
             except Exception as error:  # a lost worker fails its site only
-                outcome = _failure({"key": key, "config": str(config),
-                                    "directory": str(out / key)}, error)
+                outcome = _lost_site(_failure({"key": key, "config": str(config),
+                                               "directory": str(out / key)}, error), error)
             end(future, outcome)
         if not pending:
             break
@@ -1363,6 +1366,26 @@ def _run_tasks(client, sites, out: Path, force: bool, progress,
                         "Check that its input can be read (a network share that stopped "
                         "answering), or raise the limit for a very long record")))
     return outcomes
+
+
+def _lost_site(outcome: SiteOutcome, error: BaseException) -> SiteOutcome:
+    """The outcome of a site whose worker processes died while computing it.
+
+    Dask retries such a task on other workers (``distributed.scheduler.allowed-failures``,
+    3 by default) and then fails it with ``KilledWorker``; its traceback is the client's
+    and tells nothing of the site. Said in the trade's words instead, without the trace:
+    the usual causes are the kernel's out-of-memory killer and a crash of native code.
+    """
+    if type(error).__name__ != "KilledWorker":
+        return outcome
+    from dataclasses import replace
+
+    message = ("the worker process computing this site died each time it was tried (killed: "
+               "out of memory and the kernel's OOM killer, a kill -9, a crash of native "
+               "code); its folder keeps what an earlier run left (nothing half-written). "
+               "Run the batch again; if memory ran out, with fewer --workers")
+    return replace(outcome, error="WorkerLostError", message=message,
+                   note=f"WorkerLostError: {message}", traceback="")
 
 
 class SiteTimeLimitError(FluxpartError):

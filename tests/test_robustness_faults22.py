@@ -212,3 +212,38 @@ def test_the_site_time_limit_is_a_setting_with_a_default(tmp_path, capsys):
     sites = _network(tmp_path, ["alder"])
     assert main(["batch", str(sites), "--quiet", "--site-time-limit", "0"]) == 2
     assert "--site-time-limit" in _one_error_line(capsys)
+
+
+def test_a_site_whose_worker_dies_each_time_is_one_line_without_a_trace(tmp_path, capsys,
+                                                                        monkeypatch):
+    """A site whose worker process is killed at every try (the kernel's OOM killer, a
+    crash of native code) ends in Dask's ``KilledWorker`` after its retries. The batch
+    printed the client's traceback of it (and the scheduler's ERROR log lines): now the
+    site's one ``error:`` line names the worker's death and what to do, no trace."""
+    from distributed.scheduler import KilledWorker
+
+    from fluxpart import batch
+
+    worker = type("WorkerState", (), {"address": "tcp://127.0.0.1:1"})()
+    error = KilledWorker("fluxpart-site-cedar-0", worker, 3)
+    common = {"key": "cedar", "config": str(tmp_path / "cedar.toml"),
+              "directory": str(tmp_path / "res" / "cedar")}
+    outcome = batch._lost_site(batch._failure(common, error), error)
+    assert outcome.status == "failed" and outcome.traceback == ""
+    assert outcome.error == "WorkerLostError" and "fewer --workers" in outcome.message
+    # any other failure is left as it was
+    other = ValueError("x")
+    assert batch._lost_site(batch._failure(common, other), other).error == "ValueError"
+
+    sites = _network(tmp_path, ["cedar"])
+    report = batch.BatchReport(out=tmp_path / "res", outcomes=(outcome,), network=None,
+                               failures=None, warnings=())
+    monkeypatch.setattr(batch, "run_batch", lambda *a, **k: report)
+    monkeypatch.setattr(batch, "_summary", lambda r: "summary")
+    args = type("Args", (), {"sites": sites, "quiet": True, "scheduler": None,
+                             "workers": None, "out": None, "force": False,
+                             "site_time_limit": None})()
+    assert batch.command_batch(args) == 1
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: site 'cedar'") \
+        and "WorkerLostError" in err[0]
