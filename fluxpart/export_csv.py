@@ -413,8 +413,10 @@ def write_csv(result, folder) -> Path:
             raise OutputError(f"--csv {str(target)!r} was written by another process while "
                               "this export ran; it is left as that process wrote it and "
                               "nothing of this export was written: give a new folder") from None
+        remedy = ("raise the file-size limit (`ulimit -f`), or choose another place"
+                  if error.errno == errno.EFBIG else "free space, or choose another place")
         raise OutputError(f"--csv {str(target)!r}: writing failed ({reason}); nothing was "
-                          "written: free space, or choose another place") from None
+                          f"written: {remedy}") from None
     except BaseException:
         _remove(staging)
         raise

@@ -8,6 +8,7 @@ fails with ``ENOTEMPTY`` or ``EEXIST`` and the top folder of a mounted file syst
 cannot be removed or renamed onto (``EBUSY``) (Linux man-pages rename(2), rmdir(2) (m)).
 """
 
+import errno
 import os
 import shutil
 import threading
@@ -247,3 +248,25 @@ def test_a_site_whose_worker_dies_each_time_is_one_line_without_a_trace(tmp_path
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("error: site 'cedar'") \
         and "WorkerLostError" in err[0]
+
+
+def test_a_file_size_limit_during_the_csv_export_is_named(bundle, tmp_path, monkeypatch,
+                                                         capsys):
+    """``ulimit -f`` (a batch system's or a shell's file-size limit) makes a write fail
+    with EFBIG, "File too large" (Python ignores SIGXFSZ; setrlimit(2) (m)): the export
+    told the user to free space, which does not help. Now the limit is named; nothing
+    is written."""
+    real = open
+
+    def limited(path, mode="r", *args, **kwargs):
+        handle = real(path, mode, *args, **kwargs)
+        if "w" in mode and str(path).endswith("daily.csv"):
+            handle.close()
+            raise OSError(errno.EFBIG, os.strerror(errno.EFBIG))
+        return handle
+
+    monkeypatch.setattr("builtins.open", limited)
+    assert main(["export", str(bundle / "out"), "--csv", str(tmp_path / "csv")]) == 2
+    line = _one_error_line(capsys)
+    assert "ulimit -f" in line and "free space" not in line
+    assert not (tmp_path / "csv").exists() and _leftovers(tmp_path) == []
