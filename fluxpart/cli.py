@@ -187,8 +187,9 @@ def _command_export(args) -> int:
                               "lists (a file there would make load, verify and diff refuse it); "
                               "write it outside the folder")
     if args.csv is not None:
-        from .export_csv import check_target
+        from .export_csv import check_name, check_target
 
+        check_name(Path(args.csv))        # a name too long, before probing inside it
         target = Path(args.csv).absolute().resolve()
         _refuse_network_dataset("--csv", args.csv, target)
         enclosing = _enclosing_result(target)

@@ -79,7 +79,7 @@ from .errors import OutputError
 from .schema import TIME_CONVENTION, units_for_table
 from .store import _stored_index, file_mode, folder_mode, remove_stale, set_mode
 
-__all__ = ["DESCRIPTION_PROPERTY", "METADATA_NAME", "UNIT_PROPERTY", "check_target",
+__all__ = ["DESCRIPTION_PROPERTY", "METADATA_NAME", "UNIT_PROPERTY", "check_name", "check_target",
            "command_csv", "csv_tables", "offset_text", "write_csv"]
 
 #: Name of the CSVW metadata file (the standard's default for a folder of CSV files).
@@ -316,6 +316,7 @@ def check_target(target: Path) -> None:
     OutputError
         Naming the option and the path.
     """
+    check_name(target)
     if target.is_symlink():
         # the folder is renamed into place: that would replace the link, not fill its folder
         raise OutputError(f"--csv {str(target)!r} is a symbolic link; the CSV folder is "
@@ -421,6 +422,31 @@ def write_csv(result, folder) -> Path:
         _remove(staging)
         raise
     return target
+
+
+def check_name(target: Path) -> None:
+    """Refuse a `target` folder name longer than its file system allows (``NAME_MAX``).
+
+    Raises
+    ------
+    OutputError
+        Naming the option, the name's length in bytes and the limit.
+    """
+    limit, size = _name_limit_of(target), len(os.fsencode(target.name))
+    if size > limit:
+        raise OutputError(f"--csv: the folder name {target.name[:40]!r}... is {size} bytes, "
+                          f"longer than a name may be on this file system ({limit} bytes); "
+                          "choose a shorter name")
+
+
+def _name_limit_of(target: Path) -> int:
+    """The longest name [bytes] in the nearest existing folder above `target`."""
+    from .export import _name_limit
+
+    for folder in target.absolute().parents:
+        if folder.is_dir():
+            return _name_limit(folder)
+    return 255
 
 
 def _staging_stem(name: str, parent: Path) -> str:

@@ -322,3 +322,14 @@ def test_the_netcdf_made_in_memory_holds_what_a_direct_write_holds(bundle, tmp_p
             xr.open_dataset(tmp_path / "direct.nc", engine="h5netcdf") as direct:
         assert exported.identical(direct)
         assert len(exported.data_vars) > 40
+
+
+def test_a_csv_folder_name_over_the_limit_is_named_as_such(bundle, tmp_path, capsys):
+    """A 256-byte folder name (NAME_MAX 255 bytes, common practice; 128 two-byte
+    characters in UTF-8) was refused naming the path '.../manifest.json' that the
+    command probed inside it; now the name, its length in bytes and the limit."""
+    name = "é" * 128
+    assert main(["export", str(bundle / "out"), "--csv", str(tmp_path / name)]) == 2
+    line = _one_error_line(capsys)
+    assert "256 bytes" in line and "255" in line and "manifest.json" not in line
+    assert list(tmp_path.iterdir()) == []
