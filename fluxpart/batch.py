@@ -25,6 +25,7 @@ Network file::
     [batch]
     sites = ["towers/*.toml", "other/fen.toml"]
     out = "network-output"       # optional; default: <SITES stem>-output beside it
+    site_time_limit = 240        # optional [min]; a site running longer fails as hung
 
 Inputs travel as paths, not data: the workers open the site configs and tower
 files and write the result folders themselves, so every worker must see the
@@ -112,8 +113,16 @@ _PERIOD_COLUMNS = {"annual": "year", "monthly": "month", "daily": "date"}
 FAILURES_FILE = "failures.parquet"
 _NETWORK_FORMAT = "fluxpart-network/1"
 
-_BATCH_KEYS = ("out", "sites")
+_BATCH_KEYS = ("out", "sites", "site_time_limit")
 _DEFAULT_WORKERS = 2
+#: Default of ``[batch] site_time_limit`` [min]: a site that runs longer is taken for hung.
+#: One site-year of 30-min records takes ~2 s of CPU and ten ~14 s here (DEVELOPERS.md,
+#: ``bench_commands.py``); four hours leave a factor of ~1000 for long records, 5-min
+#: records, slow or shared machines, and stop only a site that waits for ever (an input
+#: on a network share that stopped answering, a stalled disk).
+DEFAULT_SITE_TIME_LIMIT_MINUTES = 240.0
+#: How often the client looks which sites are running [s] (the limit's resolution).
+_POLL_SECONDS = 1.0
 _CONNECT_TIMEOUT_SECONDS = 10
 _RESERVED_KEYS = {*NETWORK_DATASETS.values(), FAILURES_FILE, NETWORK_SEAL}
 _SITE_COLUMNS = {
@@ -152,11 +161,15 @@ class NetworkFile:
         ``(key, config)`` per site in listing order: each pattern's matches sorted,
         duplicates dropped. The key names the site's result folder and its
         partition of the network dataset.
+    site_time_limit : float
+        ``[batch] site_time_limit`` [min]: a site still running that long after it
+        started on a worker fails (default :data:`DEFAULT_SITE_TIME_LIMIT_MINUTES`).
     """
 
     path: Path
     out: Path
     sites: tuple
+    site_time_limit: float = DEFAULT_SITE_TIME_LIMIT_MINUTES
 
 
 @dataclass(frozen=True)
@@ -306,9 +319,25 @@ def read_sites_file(path) -> NetworkFile:
     if not isinstance(out, str) or not out.strip():
         raise ConfigError(f"[batch] out = {out!r}: expected a folder path (a string, relative "
                           "to the network file)")
+    limit = check_site_time_limit(table.get("site_time_limit",
+                                            DEFAULT_SITE_TIME_LIMIT_MINUTES),
+                                  "[batch] site_time_limit")
     configs = _expand_sites(table.get("sites"), base, path.resolve())
     keys = _site_keys(configs)
-    return NetworkFile(path=path.resolve(), out=base / out, sites=tuple(zip(keys, configs, strict=True)))
+    return NetworkFile(path=path.resolve(), out=base / out,
+                       sites=tuple(zip(keys, configs, strict=True)), site_time_limit=limit)
+
+
+def check_site_time_limit(value, where: str) -> float:
+    """A site time limit [min] as a positive finite float, else a ConfigError naming `where`."""
+    import math
+
+    if isinstance(value, bool) or not isinstance(value, (int, float)) \
+            or not math.isfinite(value) or value <= 0:
+        raise ConfigError(f"{where} = {value!r}: expected the minutes a site may run before "
+                          f"it is taken for hung, a positive number (default "
+                          f"{DEFAULT_SITE_TIME_LIMIT_MINUTES:g})")
+    return float(value)
 
 
 def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Path]:
@@ -921,7 +950,10 @@ def _client(scheduler, workers, sites: int | None = None):
                 cluster = LocalCluster(n_workers=workers or _DEFAULT_WORKERS,
                                        threads_per_worker=1,
                                        processes=True, host="127.0.0.1", dashboard_address=None,
-                                       silence_logs=logging.ERROR,
+                                       # the scheduler's own ERROR lines (a worker
+                                       # that died, keys it could not gather) are
+                                       # said per site by the batch summary
+                                       silence_logs=logging.CRITICAL,
                                        # no dashboard, but the scheduler still serves HTTP
                                        # (health, metrics): on a free port, not on 8787, which
                                        # another cluster or batch may hold (Dask then warned
@@ -946,7 +978,7 @@ def _client(scheduler, workers, sites: int | None = None):
 
 
 def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False,
-              progress=None) -> BatchReport:
+              progress=None, site_time_limit=None) -> BatchReport:
     """Process every site of a network file on Dask and write the network tables.
 
     Parameters
@@ -967,6 +999,11 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     progress : callable, optional
         Called as ``progress(outcome, finished, total)`` each time a site ends
         (``finished`` counts the sites ended so far, written, skipped or failed).
+    site_time_limit : float, optional
+        Minutes a site may run on its worker before it is taken for hung and failed
+        (its task cancelled; a local cluster's worker is stopped with the cluster);
+        default ``[batch] site_time_limit`` of the network file, else
+        :data:`DEFAULT_SITE_TIME_LIMIT_MINUTES`.
 
     Returns
     -------
@@ -1001,6 +1038,8 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     """
     started = time.time()
     network = read_sites_file(sites_file)
+    limit = (network.site_time_limit if site_time_limit is None
+             else check_site_time_limit(site_time_limit, "--site-time-limit"))
     out = (Path(out) if out is not None else network.out).resolve()
     _check_out(out)
     _check_cluster_options(scheduler, workers)   # a usage error leaves no new folder
@@ -1008,7 +1047,7 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     _sweep_leftovers(out, started)
     client, cluster = _client(scheduler, workers, len(network.sites))
     try:
-        outcomes = _run_tasks(client, network.sites, out, force, progress)
+        outcomes = _run_tasks(client, network.sites, out, force, progress, limit * 60.0)
     finally:
         client.close()
         if cluster is not None:
@@ -1253,8 +1292,30 @@ def _sweep_leftovers(out: Path, started: float) -> list[str]:
     return remove_stale(out, _LEFTOVER, started)
 
 
-def _run_tasks(client, sites, out: Path, force: bool, progress) -> list[SiteOutcome]:
-    from dask.distributed import as_completed
+def _executing_keys(dask_worker) -> list:
+    """Keys of the tasks running on a worker now (run on each worker by the client)."""
+    return list(dask_worker.active_threads.values())
+
+
+def _running_now(client) -> set:
+    """Keys of the tasks running on any worker; none where the workers cannot be asked."""
+    try:
+        answers = client.run(_executing_keys, on_error="return")
+    except Exception:  # a lost worker or scheduler: the tasks' own failure tells
+        return set()
+    return {key for keys in answers.values() if isinstance(keys, list) for key in keys}
+
+
+def _run_tasks(client, sites, out: Path, force: bool, progress,
+               time_limit: float = DEFAULT_SITE_TIME_LIMIT_MINUTES * 60.0
+               ) -> list[SiteOutcome]:
+    """Run every site as a task; a site running longer than `time_limit` [s] fails.
+
+    The limit counts from when the client first sees the site's task running on a
+    worker (polled every :data:`_POLL_SECONDS`), not from its submission: a site
+    queued behind others is not charged for their time.
+    """
+    from dask.distributed import wait
 
     futures, run = {}, uuid.uuid4().hex[:8]
     for position, (key, config) in enumerate(sites):
@@ -1262,17 +1323,73 @@ def _run_tasks(client, sites, out: Path, force: bool, progress) -> list[SiteOutc
                                key=f"fluxpart-site-{key}-{run}")
         futures[future] = (position, key, config)
     outcomes = [None] * len(sites)
-    for finished, future in enumerate(as_completed(futures), start=1):
-        position, key, config = futures[future]
-        try:
-            outcome = future.result()
-        except Exception as error:  # a lost worker fails its site only
-            outcome = _failure({"key": key, "config": str(config),
-                                "directory": str(out / key)}, error)
+    pending, started, finished = set(futures), {}, 0
+
+    def end(future, outcome):
+        nonlocal finished
+        position = futures[future][0]
         outcomes[position] = outcome
+        pending.discard(future)
+        finished += 1
         if progress is not None:
             progress(outcome, finished, len(sites))
+
+    while pending:
+        try:
+            done, _ = wait(list(pending), timeout=_POLL_SECONDS, return_when="FIRST_COMPLETED")
+        except TimeoutError:
+            done = set()
+        for future in sorted(done, key=lambda f: futures[f][0]):
+            position, key, config = futures[future]
+            try:
+                outcome = future.result()
+            except Exception as error:  # a lost worker fails its site only
+                outcome = _lost_site(_failure({"key": key, "config": str(config),
+                                               "directory": str(out / key)}, error), error)
+            end(future, outcome)
+        if not pending:
+            break
+        now = time.monotonic()
+        running = _running_now(client)
+        for future in sorted(pending, key=lambda f: futures[f][0]):
+            if future.key in running:
+                started.setdefault(future.key, now)
+            if future.key in started and now - started[future.key] > time_limit:
+                position, key, config = futures[future]
+                future.cancel()
+                end(future, _failure(
+                    {"key": key, "config": str(config), "directory": str(out / key)},
+                    SiteTimeLimitError(
+                        f"still running after {time_limit / 60.0:g} min ([batch] "
+                        "site_time_limit, --site-time-limit): taken for hung and stopped; "
+                        "its folder keeps what an earlier run left (nothing half-written). "
+                        "Check that its input can be read (a network share that stopped "
+                        "answering), or raise the limit for a very long record")))
     return outcomes
+
+
+def _lost_site(outcome: SiteOutcome, error: BaseException) -> SiteOutcome:
+    """The outcome of a site whose worker processes died while computing it.
+
+    Dask retries such a task on other workers (``distributed.scheduler.allowed-failures``,
+    3 by default) and then fails it with ``KilledWorker``; its traceback is the client's
+    and tells nothing of the site. Said in the trade's words instead, without the trace:
+    the usual causes are the kernel's out-of-memory killer and a crash of native code.
+    """
+    if type(error).__name__ != "KilledWorker":
+        return outcome
+    from dataclasses import replace
+
+    message = ("the worker process computing this site died each time it was tried (killed: "
+               "out of memory and the kernel's OOM killer, a kill -9, a crash of native "
+               "code); its folder keeps what an earlier run left (nothing half-written). "
+               "Run the batch again; if memory ran out, with fewer --workers")
+    return replace(outcome, error="WorkerLostError", message=message,
+                   note=f"WorkerLostError: {message}", traceback="")
+
+
+class SiteTimeLimitError(FluxpartError):
+    """A batch site ran longer than ``[batch] site_time_limit`` and was stopped."""
 
 
 # --------------------------------------------------------------------------- command line
@@ -1362,7 +1479,8 @@ def command_batch(args) -> int:
     counter = _SiteProgress(len(network.sites), sys.stderr) if show else None
     try:
         report = run_batch(args.sites, scheduler=args.scheduler, workers=args.workers,
-                           out=args.out, force=args.force, progress=counter)
+                           out=args.out, force=args.force, progress=counter,
+                           site_time_limit=getattr(args, "site_time_limit", None))
     finally:
         if counter is not None:
             counter.close()

@@ -187,8 +187,9 @@ def _command_export(args) -> int:
                               "lists (a file there would make load, verify and diff refuse it); "
                               "write it outside the folder")
     if args.csv is not None:
-        from .export_csv import check_target
+        from .export_csv import check_name, check_target
 
+        check_name(Path(args.csv))        # a name too long, before probing inside it
         target = Path(args.csv).absolute().resolve()
         _refuse_network_dataset("--csv", args.csv, target)
         enclosing = _enclosing_result(target)
@@ -501,6 +502,9 @@ def _parser() -> argparse.ArgumentParser:
     batch.add_argument("--workers", type=int, help="workers of the local cluster")
     batch.add_argument("--out", type=_path, help="output folder (default: from SITES.toml)")
     batch.add_argument("--force", action="store_true", help="rerun sites already up to date")
+    batch.add_argument("--site-time-limit", type=float, metavar="MINUTES",
+                       help="minutes a site may run on its worker before it is taken for hung "
+                            "and failed (default: [batch] site_time_limit, else 240)")
     batch.add_argument("--quiet", action="store_true", help="no progress output")
     batch.set_defaults(handler=_lazy("batch", "command_batch"))
 

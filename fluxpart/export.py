@@ -600,11 +600,28 @@ def write_netcdf(result, path) -> Path:
     try:
         # inside: a network file system reports a failed write (full quota, I/O error) at
         # close, and the error then escaped as a traceback leaving the temporary file
-        os.close(handle)
-        dataset.to_netcdf(temporary, engine=engine, format="NETCDF4")
+        if engine == "h5netcdf":
+            # the file is made in memory and written with Python's own I/O: the HDF5
+            # library writing a file on a full disk (ENOSPC) printed ~150 lines of
+            # tracebacks and most often crashed the interpreter (SIGSEGV, exit 139),
+            # leaving its temporary file; a failed write is now a plain OSError here
+            import io
+
+            buffer = io.BytesIO()
+            dataset.to_netcdf(buffer, engine=engine, format="NETCDF4")
+            with os.fdopen(handle, "wb") as stream:
+                handle = None
+                stream.write(buffer.getbuffer())
+                stream.flush()
+                os.fsync(stream.fileno())
+        else:
+            os.close(handle)
+            handle = None
+            dataset.to_netcdf(temporary, engine=engine, format="NETCDF4")
         set_mode(temporary, file_mode())
         os.replace(temporary, path)
     except OSError as error:        # a full disk, the file-size limit (ulimit -f), an I/O error
+        _close_quietly(handle)
         Path(temporary).unlink(missing_ok=True)
         reason = os.strerror(error.errno) if error.errno else str(error).split(" (")[0]
         failed = OutputError(f"--netcdf {str(path)!r}: writing failed ({reason}); nothing was "
@@ -615,9 +632,19 @@ def write_netcdf(result, path) -> Path:
         failed.end_process = True
         raise failed from None
     except BaseException:
+        _close_quietly(handle)
         Path(temporary).unlink(missing_ok=True)
         raise
     return path
+
+
+def _close_quietly(handle) -> None:
+    """Close the descriptor `handle` of a temporary file if still open (None: closed)."""
+    if handle is not None:
+        try:
+            os.close(handle)
+        except OSError:
+            pass
 
 
 def _name_limit(folder: Path) -> int:

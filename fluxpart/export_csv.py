@@ -62,6 +62,7 @@ Unidata (2024). UDUNITS-2 units database and grammar.
 from __future__ import annotations
 
 import csv
+import errno
 import io
 import json
 import math
@@ -78,7 +79,7 @@ from .errors import OutputError
 from .schema import TIME_CONVENTION, units_for_table
 from .store import _stored_index, file_mode, folder_mode, remove_stale, set_mode
 
-__all__ = ["DESCRIPTION_PROPERTY", "METADATA_NAME", "UNIT_PROPERTY", "check_target",
+__all__ = ["DESCRIPTION_PROPERTY", "METADATA_NAME", "UNIT_PROPERTY", "check_name", "check_target",
            "command_csv", "csv_tables", "offset_text", "write_csv"]
 
 #: Name of the CSVW metadata file (the standard's default for a folder of CSV files).
@@ -315,9 +316,22 @@ def check_target(target: Path) -> None:
     OutputError
         Naming the option and the path.
     """
-    if target.is_symlink() or (target.exists() and not target.is_dir()):
+    check_name(target)
+    if target.is_symlink():
+        # the folder is renamed into place: that would replace the link, not fill its folder
+        raise OutputError(f"--csv {str(target)!r} is a symbolic link; the CSV folder is "
+                          "written as a new folder in its place: give the folder the link "
+                          "points to, or a new folder")
+    if target.exists() and not target.is_dir():
         raise OutputError(f"--csv {str(target)!r} exists and is not a folder: give a new "
                           "folder for the CSV files")
+    if target.is_dir() and os.path.ismount(target):
+        # a mounted drive's top folder cannot be removed or renamed onto (EBUSY): the
+        # folder written beside it could never take its place
+        raise OutputError(f"--csv {str(target)!r} is the top folder of a mounted drive; "
+                          "the CSV folder is written beside its target and renamed into "
+                          "place, which a mount point cannot take: give a new folder inside "
+                          f"it, e.g. {str(target / 'fluxpart-csv')!r}")
     if target.is_dir():
         try:
             empty = not any(target.iterdir())
@@ -372,9 +386,10 @@ def write_csv(result, folder) -> Path:
             break
     try:
         parent.mkdir(parents=True, exist_ok=True)
-        remove_stale(parent, re.compile(rf"^\.{re.escape(target.name)}\.[a-z0-9_]{{8}}\.tmp$"),
+        stem = _staging_stem(target.name, parent)
+        remove_stale(parent, re.compile(rf"^\.{re.escape(stem)}\.[a-z0-9_]{{8}}\.tmp$"),
                      started)
-        staging = Path(tempfile.mkdtemp(prefix=f".{target.name}.", suffix=".tmp", dir=parent))
+        staging = Path(tempfile.mkdtemp(prefix=f".{stem}.", suffix=".tmp", dir=parent))
     except OSError as error:
         raise OutputError(f"--csv {str(target)!r}: cannot write in {str(parent)!r} "
                           f"({error.strerror or error}); choose a writable place") from None
@@ -394,12 +409,62 @@ def write_csv(result, folder) -> Path:
     except OSError as error:
         _remove(staging)
         reason = os.strerror(error.errno) if error.errno else str(error)
+        if error.errno in (errno.ENOTEMPTY, errno.EEXIST) and target.exists():
+            # another export (or a user) filled the folder between the check and the rename
+            raise OutputError(f"--csv {str(target)!r} was written by another process while "
+                              "this export ran; it is left as that process wrote it and "
+                              "nothing of this export was written: give a new folder") from None
+        remedy = ("raise the file-size limit (`ulimit -f`), or choose another place"
+                  if error.errno == errno.EFBIG else "free space, or choose another place")
         raise OutputError(f"--csv {str(target)!r}: writing failed ({reason}); nothing was "
-                          "written: free space, or choose another place") from None
+                          f"written: {remedy}") from None
     except BaseException:
         _remove(staging)
         raise
     return target
+
+
+def check_name(target: Path) -> None:
+    """Refuse a `target` folder name longer than its file system allows (``NAME_MAX``).
+
+    Raises
+    ------
+    OutputError
+        Naming the option, the name's length in bytes and the limit.
+    """
+    limit, size = _name_limit_of(target), len(os.fsencode(target.name))
+    if size > limit:
+        raise OutputError(f"--csv: the folder name {target.name[:40]!r}... is {size} bytes, "
+                          f"longer than a name may be on this file system ({limit} bytes); "
+                          "choose a shorter name")
+
+
+def _name_limit_of(target: Path) -> int:
+    """The longest name [bytes] in the nearest existing folder above `target`."""
+    from .export import _name_limit
+
+    for folder in target.absolute().parents:
+        if folder.is_dir():
+            return _name_limit(folder)
+    return 255
+
+
+def _staging_stem(name: str, parent: Path) -> str:
+    """The name part of the staging folder ``.STEM.xxxxxxxx.tmp`` of the target `name`.
+
+    `name` itself where the staging name (14 bytes longer) fits the file system's limit
+    on a name (``pathconf`` ``PC_NAME_MAX``, else 255 bytes: common practice on ext4,
+    XFS, APFS, NTFS); else the first 16 hexadecimal digits of its SHA-256, so a target
+    name that is legal but near the limit can still be written.
+    """
+    import hashlib
+
+    from .export import _name_limit
+
+    encoded = os.fsencode(name)
+    if len(encoded) + 14 <= _name_limit(parent):
+        return name
+    return "csv-" + hashlib.sha256(encoded).hexdigest()[:16]
 
 
 def _remove(staging: Path) -> None:

@@ -253,7 +253,9 @@ def test_export_on_a_full_disk_is_one_error_line_and_no_file(written_demo, tmp_p
     capsys.readouterr()
 
     def fail(self, path, *args, **kwargs):
-        Path(path).write_bytes(b"\x89HDF\r\n\x1a\n partial")
+        partial = b"\x89HDF\r\n\x1a\n partial"
+        # the h5netcdf engine makes the file in memory (a buffer), netCDF4 at the path
+        path.write(partial) if hasattr(path, "write") else Path(path).write_bytes(partial)
         raise OSError(code, f"Can't synchronously write data (file write failed: {code})")
 
     monkeypatch.setattr(xr.Dataset, "to_netcdf", fail)
