@@ -190,7 +190,7 @@ def test_an_error_at_closing_the_netcdf_temporary_file_is_one_error(written_demo
     """A network file system reports a failed write at close (EIO, EDQUOT): that escaped as
     an OSError traceback and left the temporary file."""
     opened = []
-    mkstemp, close = export.tempfile.mkstemp, os.close
+    mkstemp, close, fdopen = export.tempfile.mkstemp, os.close, os.fdopen
 
     def recording(*args, **kwargs):
         handle, name = mkstemp(*args, **kwargs)
@@ -202,8 +202,30 @@ def test_an_error_at_closing_the_netcdf_temporary_file_is_one_error(written_demo
         if handle in opened:
             raise OSError(5, os.strerror(5))            # EIO
 
+    class FailingAtClose:
+        """The temporary file's stream (round faults22 writes it through os.fdopen): its
+        close reports the failed write."""
+
+        def __init__(self, stream):
+            self.stream = stream
+
+        def __getattr__(self, name):
+            return getattr(self.stream, name)
+
+        def __enter__(self):
+            return self
+
+        def __exit__(self, *exc):
+            self.stream.close()
+            raise OSError(5, os.strerror(5))            # EIO
+
+    def opening(handle, *args, **kwargs):
+        stream = fdopen(handle, *args, **kwargs)
+        return FailingAtClose(stream) if handle in opened else stream
+
     monkeypatch.setattr(export.tempfile, "mkstemp", recording)
     monkeypatch.setattr(export.os, "close", failing)
+    monkeypatch.setattr(export.os, "fdopen", opening)
     target = tmp_path / "result.nc"
     with pytest.raises(OutputError, match="writing failed"):
         export.write_netcdf(written_demo[0], target)
