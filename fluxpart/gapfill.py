@@ -750,10 +750,8 @@ def _local_linear(residual, donor_drivers, gap_drivers, tolerances, run_starts, 
         missing = np.isnan(x)
         if missing.any():
             # a regressor missing at a record (NaN) sits at its records' mean: no leverage
-            present = ~missing
-            donor_mean = (np.add.reduceat(np.where(present, x, 0.0), run_starts)
-                          / np.add.reduceat(present, run_starts))
-            deviation = np.where(present, x - np.repeat(donor_mean, counts), 0.0)
+            donor_mean = _run_means(x, run_starts)
+            deviation = np.where(missing, 0.0, x - np.repeat(donor_mean, counts))
         else:
             donor_mean = np.add.reduceat(x, run_starts) / counts
             deviation = x - np.repeat(donor_mean, counts)
