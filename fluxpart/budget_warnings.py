@@ -130,44 +130,10 @@ def _unfilled_warning(year, row, annual, timeseries, in_year, config, fluxes) ->
             "unfilled"
             f"{span}: no pass of gap filling found gapfill_min_donors = "
             f"{config.gapfill_min_donors} measured records for them, not even in the whole "
-            f"{_event_piece_text(timeseries.index, unfilled, config)}"
             "record (where a driver is missing or filled with quality B or C, only the mean "
             "diurnal course can fill: records of the same time of day, and for a night record "
             "night records of any hour); "
             f"{sums} (records_unfilled in annual.parquet)")
-
-
-def _event_piece_text(index, unfilled, config) -> str:
-    """Where ``Config.events`` cut the record, the words that say the fill saw only the
-    piece between two events (empty where no event cuts it).
-
-    Each piece between events is filled from its own records only
-    (:func:`fluxpart.gapfill.event_breaks`), so events a few days apart leave pieces too
-    short to hold donors for every gap: with one event a day the invented grassland
-    example left 1136 records (6.5 %) unfilled and its NEE sum NaN, named before only as
-    "not even in the whole record" (round mistakes21). The shortest piece holding an
-    unfilled record is given in days.
-    """
-    from .gapfill import event_breaks
-
-    events = tuple(getattr(config, "events", ()) or ())
-    if not events or not len(index):
-        return ""
-    breaks = event_breaks(index, events)
-    if not len(breaks):
-        return ""
-    edges = [0, *(int(b) for b in breaks), len(index)]
-    pieces = [slice(start, stop) for start, stop in zip(edges[:-1], edges[1:], strict=True)
-              if stop > start and np.asarray(unfilled)[start:stop].any()]
-    if not pieces:
-        return ""
-    shortest = min((index[piece.stop - 1] - index[piece.start]).total_seconds() / 86400.0
-                   for piece in pieces)
-    return (f"piece of the record between the events around them ([processing] events: "
-            f"{len(events)} date(s); each piece is filled from its own records only, and "
-            f"the shortest piece with an unfilled record spans {shortest:.1f} days: declare "
-            "only abrupt changes of the ecosystem, such as a harvest, a cut or a fire), "
-            "rather than the whole ")
 
 
 def _modelled_sums_missing(year, row, timeseries, in_year, config, failed=()) -> list:
