@@ -1510,7 +1510,10 @@ _STORAGE_SLOPE_TOO_SMALL = -5.0
 #: running sum of it drifts (29 on the maize example) and a store of 400 µmol mol-1 over
 #: 2 m is thousands of times its swing (our choice, four times the largest flux value).
 _STORAGE_LEVEL_RATIO = 2.0
-#: Blocks of days whose slopes give the spread, and the fewest such blocks judged.
+#: Blocks of days whose slopes give the spread, and the fewest such blocks judged; our
+#: choice: 10 days hold several calm and several windy nights (weather changes over a
+#: few days), and 8 blocks (80 days) give the spread of a slope from at least 7 degrees
+#: of freedom.
 _STORAGE_BLOCK_DAYS = 10
 _STORAGE_MIN_BLOCKS = 8
 
