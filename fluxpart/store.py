@@ -14,6 +14,14 @@ stored twice, so that every reader finds them:
   folder passes the site, the record length and the time convention:
   :func:`fluxpart.schema.file_metadata`).
 
+A third copy, under the file-level key ``PANDAS_ATTRS``, is the ``DataFrame.attrs``
+that :func:`read_table` gives (``units``, ``descriptions``, ``table`` and the
+writer's facts), as JSON: ``pandas.read_parquet`` (pandas 2.1 and later, pyarrow
+engine) restores the frame's ``attrs`` from that key, so a plain pandas reader sees
+the units too (:func:`reader_attrs`). Tables written before it lack the key; their
+values and other metadata are unchanged (:func:`fluxpart.verify.metadata_differences`
+does not count its absence).
+
 Units are UDUNITS-2 strings (:mod:`fluxpart.units`). String columns that hold a few
 labels (pandas ``category``: fill quality, rejection reasons) are stored
 dictionary-encoded. :func:`read_table` restores the same DataFrame and puts the
@@ -40,10 +48,16 @@ import pyarrow.parquet as pq
 
 from .errors import InputFileError
 
-__all__ = ["atomic_write_bytes", "column_units", "file_mode", "file_sha256", "folder_mode",
-           "parquet_source", "read_table", "remove_stale", "set_mode", "table_shape", "unreadable", "write_table"]
+__all__ = ["PANDAS_ATTRS_KEY", "atomic_write_bytes", "column_units", "file_mode", "file_sha256",
+           "folder_mode", "parquet_source", "read_table", "reader_attrs", "remove_stale",
+           "set_mode", "table_shape", "unreadable", "write_table"]
 
 _SCHEMA_KEY = b"fluxpart"
+#: The file-level key-value metadata key whose JSON ``pandas.read_parquet`` (pyarrow
+#: engine, pandas >= 2.1) loads into ``DataFrame.attrs`` (pandas 2.1.0 release notes,
+#: "DataFrame.to_parquet and read_parquet will now write and read attrs
+#: respectively" (m); pandas/io/parquet.py reads the key ``PANDAS_ATTRS``).
+PANDAS_ATTRS_KEY = b"PANDAS_ATTRS"
 #: Facts of a frame's ``attrs`` that travel into the file metadata (set by the
 #: pipeline and by :func:`read_table`; see :func:`fluxpart.schema.with_metadata`).
 _CARRIED = ("site", "interval_minutes", "time_convention")
@@ -231,8 +245,43 @@ def _to_arrow(frame: pd.DataFrame, units: dict[str, tuple[str, str]], name: str,
     meta = {**carried, **(metadata or {}), "table": name, "index": index_name,
             "columns": columns}
     text = json.dumps(meta, sort_keys=True, ensure_ascii=False, allow_nan=False)
-    schema = pa.schema(fields, metadata={_SCHEMA_KEY: text.encode("utf-8")})
+    attrs = json.dumps(reader_attrs(meta), sort_keys=True, ensure_ascii=False,
+                       allow_nan=False)
+    schema = pa.schema(fields, metadata={_SCHEMA_KEY: text.encode("utf-8"),
+                                         PANDAS_ATTRS_KEY: attrs.encode("utf-8")})
     return pa.Table.from_arrays(arrays, schema=schema)
+
+
+def reader_attrs(info: dict) -> dict:
+    """The ``DataFrame.attrs`` of a table from its ``fluxpart`` file metadata.
+
+    Parameters
+    ----------
+    info : dict
+        The parsed ``fluxpart`` key-value metadata of a table: ``columns`` (column ->
+        ``{"unit", "description"}``), ``index`` and the writer's facts (``table``,
+        ``site``, ``interval_minutes``, ``time_convention``).
+
+    Returns
+    -------
+    dict
+        ``units`` and ``descriptions`` (column -> text, the stored index column
+        included; units are UDUNITS-2 strings, "" for none) and every other key of
+        `info` but ``columns`` and ``index``. :func:`read_table` puts this into the
+        frame's ``attrs``, and :func:`write_table` stores it under
+        :data:`PANDAS_ATTRS_KEY`, from which ``pandas.read_parquet`` restores the same
+        ``attrs``.
+
+    References
+    ----------
+    pandas 2.1.0 release notes: ``read_parquet`` reads ``DataFrame.attrs`` from the
+    file metadata key ``PANDAS_ATTRS`` (m).
+    """
+    columns = info.get("columns") or {}
+    attrs = {key: value for key, value in info.items() if key not in ("columns", "index")}
+    attrs["units"] = {column: entry["unit"] for column, entry in columns.items()}
+    attrs["descriptions"] = {column: entry["description"] for column, entry in columns.items()}
+    return attrs
 
 
 def write_table(frame: pd.DataFrame, path, units: dict[str, tuple[str, str]], name: str, *,
@@ -332,10 +381,7 @@ def read_table(path) -> pd.DataFrame:
         f.name: {"unit": (f.metadata or {}).get(b"unit", b"").decode(),
                  "description": (f.metadata or {}).get(b"description", b"").decode()}
         for f in table.schema}
-    attrs = {key: value for key, value in info.items() if key not in ("columns", "index")}
-    attrs["units"] = {column: entry["unit"] for column, entry in columns.items()}
-    attrs["descriptions"] = {column: entry["description"] for column, entry in columns.items()}
-    frame.attrs.update(attrs)
+    frame.attrs.update(reader_attrs({**info, "columns": columns}))
     return frame
 
 

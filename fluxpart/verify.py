@@ -686,12 +686,39 @@ def metadata_differences(stored: Path, recomputed: Path) -> list[tuple[str, str,
     Equal values with unequal metadata are a different result: a unit or the
     site's UTC offset changed in a table's metadata changes what its numbers mean
     to every reader (``fluxpart.load`` hands them to the modeller).
+
+    The ``PANDAS_ATTRS`` copy of the metadata for ``pandas.read_parquet``
+    (:data:`fluxpart.store.PANDAS_ATTRS_KEY`, written since round modeller23) is
+    compared where the stored file has it (an edited unit there is named like any
+    other); a table written before it lacks the key, which is no difference: the
+    key repeats the ``fluxpart`` metadata compared above.
     """
+    from .store import PANDAS_ATTRS_KEY
+
     def text(value):
         return value if isinstance(value, str) else json.dumps(value, sort_keys=True)
 
-    found = field_differences(_schema_record(Path(stored)), _schema_record(Path(recomputed)), "")
+    old, new = _schema_record(Path(stored)), _schema_record(Path(recomputed))
+    copy = PANDAS_ATTRS_KEY.decode()
+    if copy not in old:
+        new.pop(copy, None)
+    found = field_differences(old, new, "")
     return [(key, text(old), text(new)) for key, old, new in found]
+
+
+def _lacks_pandas_copy(path: Path) -> bool:
+    """Whether a stored table lacks the ``PANDAS_ATTRS`` metadata key (a table written
+    before round modeller23; :data:`fluxpart.store.PANDAS_ATTRS_KEY`)."""
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    from .store import PANDAS_ATTRS_KEY, parquet_source
+
+    try:
+        with parquet_source(path) as source:
+            return PANDAS_ATTRS_KEY not in (pq.read_schema(source).metadata or {})
+    except (OSError, ValueError, pa.ArrowException):
+        return False
 
 
 def _environment(manifest: dict) -> tuple[list[str], bool]:
@@ -1470,7 +1497,10 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                 differences += [Difference(name, "metadata", column=key, stored=old,
                                            recomputed=new) for key, old, new in described]
                 if not described:
-                    cause = ("library versions differ" if environment else
+                    cause = ("written before tables carried the copy of their metadata that "
+                             "pandas.read_parquet reads (PANDAS_ATTRS)"
+                             if _lacks_pandas_copy(directory / manifest["tables"][name]["file"])
+                             else "library versions differ" if environment else
                              "the recorded library versions and platform match; a compression "
                              "library outside the record may differ")
                     notes.append(f"{name}: values and metadata bit-identical, file bytes differ "

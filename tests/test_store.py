@@ -203,3 +203,51 @@ def test_a_file_system_without_permission_bits_still_takes_the_result(tmp_path, 
     with pytest.raises(OSError, match="Input/output error"):
         atomic_write_bytes(tmp_path / "b.bin", b"lost")
     assert sorted(p.name for p in tmp_path.iterdir() if p.name.startswith(".b.bin")) == []
+
+
+def test_plain_pandas_read_parquet_sees_the_units(written_demo):
+    """`pandas.read_parquet` (pyarrow engine) restores `DataFrame.attrs` from the file
+    metadata key ``PANDAS_ATTRS`` (pandas/io/parquet.py of the installed pandas; pandas
+    2.1.0 release notes (m)). fluxpart kept the units only in the Arrow field metadata and
+    its own key, which pandas drops: a modeller reading with plain pandas saw no unit.
+    Now every table of a result read with plain pandas has the `attrs` that
+    `fluxpart.load` gives, each unit equal to the Arrow field's (pyarrow) and, where not
+    empty, a unit UDUNITS-2 knows (cf_units), and the same values (the stored index a
+    first column, as pandas reads a file without its own index metadata)."""
+    cf_units = pytest.importorskip("cf_units")
+    _, folder = written_demo
+    files = sorted(Path(folder).glob("*.parquet"))
+    assert len(files) >= 8
+    for path in files:
+        plain = pd.read_parquet(path)
+        ours = read_table(path)
+        assert plain.attrs == ours.attrs, path.name
+        assert plain.attrs["units"], path.name
+        fields = {f.name: f.metadata[b"unit"].decode() for f in pq.read_schema(path)}
+        assert plain.attrs["units"] == fields, path.name
+        for column, unit in plain.attrs["units"].items():
+            if unit:
+                assert not cf_units.Unit(unit).is_unknown(), (path.name, column, unit)
+        assert set(plain.attrs["descriptions"]) == set(plain.columns), path.name
+        index = json.loads(pq.read_schema(path).metadata[b"fluxpart"])["index"]
+        back = plain.set_index(index) if index is not None else plain
+        pd.testing.assert_frame_equal(back, ours, check_freq=False)
+    daily = pd.read_parquet(Path(folder) / "daily.parquet")
+    assert daily.attrs["units"]["nee"] == "g m-2"
+    assert "carbon" in daily.attrs["descriptions"]["nee"]
+    assert daily.attrs["site"]["name"] == fluxpart.demo.site().name
+    assert "local standard time" in daily.attrs["time_convention"]
+
+
+def test_pandas_attrs_copy_follows_the_written_metadata(tmp_path):
+    """The copy for pandas holds what was written: units of the given columns, the
+    facts of the file metadata and no unit for a column not described; a second write of
+    the same frame gives the same bytes (json with sorted keys)."""
+    frame = _frame()
+    path = _write(tmp_path, frame, metadata=file_metadata(_SITE, 60))
+    attrs = pd.read_parquet(path).attrs
+    assert attrs["units"] == {"time": "", "nee_filled": "umol m-2 s-1", "nee_fill_quality": ""}
+    assert attrs["interval_minutes"] == 60 and attrs["site"]["utc_offset"] == 12.0
+    assert attrs["table"] == "timeseries" and "index" not in attrs
+    first = path.read_bytes()
+    assert _write(tmp_path, frame, metadata=file_metadata(_SITE, 60)).read_bytes() == first

@@ -283,6 +283,55 @@ def test_resealed_unit_or_site_metadata_edit_is_not_reproduced(copy, capsys):
     assert "annual" not in out.split("result:")[0]          # the other tables still match
 
 
+def _rewrite_metadata(folder, table, change):
+    """Rewrite a table's file metadata by `change(dict)`, its hash and the seal forged."""
+    path = folder / f"{table}.parquet"
+    arrow = pq.read_table(path)
+    meta = dict(arrow.schema.metadata)
+    change(meta)
+    pq.write_table(arrow.replace_schema_metadata(meta), path)
+    _edit_manifest(folder, lambda m: m["tables"][table].update(sha256=file_sha256(path)),
+                   reseal=True)
+
+
+def test_tables_written_before_the_pandas_copy_still_verify(copy, capsys):
+    """Tables of an earlier release carry no ``PANDAS_ATTRS`` key (the copy of their
+    metadata that pandas.read_parquet loads into ``DataFrame.attrs``: pandas/io/parquet.py);
+    the rerun writes it. Its absence is no difference (the key repeats the ``fluxpart``
+    metadata, compared as before): bit-identical, exit 0, a note per table naming the
+    cause rather than "library versions differ"."""
+    folder = copy / "out"
+    for table in ("annual", "daily"):
+        _rewrite_metadata(folder, table, lambda meta: meta.pop(b"PANDAS_ATTRS"))
+        assert b"PANDAS_ATTRS" not in pq.read_schema(folder / f"{table}.parquet").metadata
+    assert main(["verify", str(folder)]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("bit-identical")
+    for table in ("annual", "daily"):
+        assert (f"note: {table}: values and metadata bit-identical, file bytes differ from "
+                "the recorded ones (written before tables carried the copy of their metadata "
+                "that pandas.read_parquet reads (PANDAS_ATTRS))") in out
+    assert "monthly: values and metadata" not in out
+
+
+def test_an_edited_unit_in_the_pandas_copy_is_not_reproduced(copy, capsys):
+    """A unit edited in the copy pandas reads misleads a plain pandas reader as much as one
+    edited in the field metadata: with hash and seal forged it is named, exit 1."""
+    def edit(meta):
+        attrs = json.loads(meta[b"PANDAS_ATTRS"])
+        attrs["units"]["nee"] = "kg m-2"
+        meta[b"PANDAS_ATTRS"] = json.dumps(attrs).encode()
+
+    folder = copy / "out"
+    _rewrite_metadata(folder, "daily", edit)
+    assert pd.read_parquet(folder / "daily.parquet").attrs["units"]["nee"] == "kg m-2"
+    assert main(["verify", str(folder)]) == 1
+    out = capsys.readouterr().out
+    assert out.startswith("NOT reproduced")
+    assert "daily: metadata 'PANDAS_ATTRS.units.nee' differs (values equal): stored " \
+           "'kg m-2', recomputed 'g m-2'" in out
+
+
 def test_last_bit_change_is_rounding_and_exact_refuses_it(copy, capsys):
     """A one-ulp change in a consistent folder (as another CPU gives) is rounding: exit 0.
 
