@@ -82,10 +82,12 @@ from .network_layout import (  # noqa: F401 - also this module's names
 from .resultdir import check_folder, folder_lock
 from .schema import TIME_CONVENTION, units_for_table
 from .store import (
+    PANDAS_ATTRS_KEY,
     atomic_write_bytes,
     file_sha256,
     folder_mode,
     read_table,
+    reader_attrs,
     remove_stale,
     set_mode,
     unreadable,
@@ -571,9 +573,13 @@ def _unify(tables: list[pa.Table], name: str = "annual") -> list[pa.Table]:
     # tables: DuckDB's parquet_kv_metadata and Polars' read_parquet_metadata see only these
     columns = {f.name: {"unit": units[f.name][0], "description": units[f.name][1]}
                for f in schema}
-    meta = {b"fluxpart": json.dumps({"table": NETWORK_DATASETS[name], "partitioning": "site",
-                                     "time_convention": TIME_CONVENTION, "columns": columns},
-                                    sort_keys=True, ensure_ascii=False).encode()}
+    info = {"table": NETWORK_DATASETS[name], "partitioning": "site",
+            "time_convention": TIME_CONVENTION, "columns": columns}
+    # and as the DataFrame.attrs pandas.read_parquet restores (the PANDAS_ATTRS key), as in
+    # a site's own tables (round modeller23)
+    meta = {b"fluxpart": json.dumps(info, sort_keys=True, ensure_ascii=False).encode(),
+            PANDAS_ATTRS_KEY: json.dumps(reader_attrs(info), sort_keys=True,
+                                         ensure_ascii=False).encode()}
     schema = pa.schema(fields, metadata=meta)
     out = []
     for table in tables:
@@ -738,7 +744,9 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
     pandas.DataFrame
         One row per site and period: ``site`` (the site key, from the partition
         folder), the period (``year``, ``month`` or ``date``), the site columns
-        and the budget columns [g C m-2 per period], sorted by site and period.
+        and the budget columns [g C m-2 per period], sorted by site and period;
+        ``attrs`` holds ``units`` (UDUNITS-2) and ``descriptions`` of every column
+        and the time convention, as :func:`fluxpart.load` gives a site's tables.
 
     Raises
     ------
@@ -767,10 +775,35 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
                          partitioning=ds.partitioning(pa.schema([("site", pa.string())]),
                                                       flavor="hive"),
                          partition_base_dir=str(path))
-    frame = dataset.to_table().to_pandas()
+    arrow = dataset.to_table()
+    frame = arrow.to_pandas()
     ordered = ["site", *[c for c in frame.columns if c != "site"]]
-    return frame[ordered].sort_values(["site", _PERIOD_COLUMNS[table]],
-                                      kind="stable").reset_index(drop=True)
+    frame = frame[ordered].sort_values(["site", _PERIOD_COLUMNS[table]],
+                                       kind="stable").reset_index(drop=True)
+    frame.attrs = _network_attrs(files[0])
+    return frame
+
+
+def _network_attrs(path: Path) -> dict:
+    """The ``attrs`` of a network table read back: the units, descriptions, time
+    convention and table name of one of its files (:func:`fluxpart.store.reader_attrs`;
+    every site's file has the same, :func:`_unify`), and the ``site`` partition key.
+    A file without fluxpart's metadata gives none."""
+    import pyarrow.parquet as pq
+
+    from .store import parquet_source
+
+    try:
+        with parquet_source(path) as source:
+            info = json.loads((pq.read_schema(source).metadata or {}).get(b"fluxpart", b"{}"))
+    except (OSError, ValueError, pa.ArrowException):
+        info = {}
+    if not isinstance(info, dict) or not isinstance(info.get("columns"), dict):
+        return {}
+    attrs = reader_attrs(info)
+    attrs["units"] = {"site": "", **attrs["units"]}
+    attrs["descriptions"] = {"site": _FAILURE_COLUMNS["site"][1], **attrs["descriptions"]}
+    return attrs
 
 
 def _write_failures(outcomes, out: Path) -> pd.DataFrame:

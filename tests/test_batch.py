@@ -423,6 +423,17 @@ def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster
 
     frame = pd.read_parquet(folder)
     assert "site" in frame.columns and len(frame) == len(table) == len(report.network)
+    # plain pandas restores DataFrame.attrs from the files' PANDAS_ATTRS key
+    # (pandas/io/parquet.py), and read_network gives the same units and descriptions
+    # (round modeller23: neither carried a unit before)
+    for attrs in (frame.attrs, report.network.attrs, batch.read_network(report.out).attrs):
+        assert attrs["units"]["nee"] == "g m-2" and attrs["units"]["latitude"] == "degree_north"
+        assert "grams of carbon" in attrs["descriptions"]["nee"]
+        assert attrs["time_convention"].startswith("each stamp marks the start")
+    assert set(report.network.attrs["units"]) == set(report.network.columns)
+    monthly = batch.read_network(report.out, "monthly")
+    assert set(monthly.attrs["units"]) == set(monthly.columns)
+    assert monthly.attrs["units"]["gpp_daytime_sigma"] == "g m-2"
     for key in configs:
         expected = read_table(report.out / key / "annual.parquet").reset_index()
         got = (report.network[report.network["site"] == key]
