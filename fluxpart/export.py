@@ -140,8 +140,14 @@ def _interval_minutes(index: pd.DatetimeIndex) -> int:
     return int(np.median(steps) // 60)
 
 
-def _flag(values, name: str, long_name: str):
-    """Codes, attributes of a CF flag variable from a labelled (categorical) column."""
+def _flag(values, name: str, long_name: str, comment: str = ""):
+    """Codes, attributes of a CF flag variable from a labelled (categorical) column.
+
+    `comment`, where given (the column's description in the result's tables), says what
+    each of the ``flag_meanings`` means: the words alone ("A B C") do not (CF-1.10
+    section 2.6.2, ``comment``: "miscellaneous information about the data or methods
+    used to produce it").
+    """
     labels = pd.Categorical(values) if not isinstance(values, pd.Categorical) else values
     if not isinstance(getattr(values, "dtype", None), pd.CategoricalDtype) and \
             pd.api.types.is_numeric_dtype(np.asarray(values)):
@@ -152,9 +158,12 @@ def _flag(values, name: str, long_name: str):
         raise FluxpartError(f"column {name!r} has records without a label; cannot write it as "
                             "a CF flag")
     meanings = " ".join(str(c).replace(" ", "_") for c in labels.categories)
-    return codes, {"long_name": long_name, "flag_values": np.arange(len(labels.categories),
-                                                                     dtype=np.int8),
-                   "flag_meanings": meanings}
+    attrs = {"long_name": long_name, "flag_values": np.arange(len(labels.categories),
+                                                              dtype=np.int8),
+             "flag_meanings": meanings}
+    if comment:
+        attrs["comment"] = comment
+    return codes, attrs
 
 
 def _bounds(starts: pd.DatetimeIndex, length: pd.Timedelta, offset: pd.Timedelta):
@@ -217,11 +226,14 @@ def to_xarray(result):
     variables = {"time_bounds": (("time", "nv"), time_bounds)}
     mean_attrs = {"cell_methods": "time: mean", "units": "kg m-2 s-1"}
     ancillary = []
+    # what each label means, as the tables' column descriptions say (round modeller23)
+    described = series.attrs.get("descriptions") or {}
     for flag_column, long_name in (("nee_fill_quality", "fill quality of nee"),
                                    ("rejection_reason", "screening outcome of the measured NEE "
                                     "(first reason it was rejected)")):
         if flag_column in series.columns:
-            codes, attrs = _flag(series[flag_column].array, flag_column, long_name)
+            codes, attrs = _flag(series[flag_column].array, flag_column, long_name,
+                                 str(described.get(flag_column) or ""))
             variables[flag_column] = ("time", codes, attrs)
             ancillary.append(flag_column)
     if "nee_random_error" in series.columns:
@@ -257,7 +269,8 @@ def to_xarray(result):
             if column.endswith("_filled") and quality in series.columns:
                 # which values are measured and which filled, as for NEE (CF-1.10 3.4, 3.5)
                 codes, flag_attrs = _flag(series[quality].array, quality,
-                                          f"fill quality of {name}")
+                                          f"fill quality of {name}",
+                                          str(described.get(quality) or ""))
                 variables[quality] = ("time", codes, flag_attrs)
                 attrs["ancillary_variables"] = quality
             variables[name] = ("time", series[column].to_numpy(dtype=float) * factor, attrs)

@@ -87,6 +87,25 @@ def test_flags_explain_themselves(exported):
     assert "low_ustar" in dataset["rejection_reason"].attrs["flag_meanings"].split()
 
 
+def test_every_flag_meaning_is_explained(exported):
+    """The words of ``flag_meanings`` name the labels ("measured A B C interpolated
+    unfilled") but not what A, B or C mean; a NetCDF reader had no other place to learn
+    it (the Parquet and CSV columns carry a description). Each flag variable now has a
+    ``comment`` (CF conventions 1.10, section 2.6.2: "miscellaneous information about the
+    data or methods used to produce it") equal to its column's description in the
+    result's tables, in which every one of its flag meanings appears."""
+    result, dataset = exported
+    flags = [name for name, variable in dataset.data_vars.items()
+             if "flag_meanings" in variable.attrs]
+    assert {"nee_fill_quality", "rejection_reason", "tair_fill_quality"} <= set(flags)
+    for name in flags:
+        comment = dataset[name].attrs["comment"]
+        assert comment == result.timeseries.attrs["descriptions"][name], name
+        for meaning in dataset[name].attrs["flag_meanings"].split():
+            assert meaning in comment, (name, meaning)
+    assert "marginal distribution sampling" in dataset["nee_fill_quality"].attrs["comment"]
+
+
 def test_gap_filled_drivers_say_which_values_were_filled(exported):
     """Each gap-filled driver links a flag variable telling measured from filled values
     (CF conventions 1.10, section 3.4 ancillary data and 3.5 flags): a modeller forcing a
