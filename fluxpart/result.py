@@ -156,6 +156,15 @@ def load(directory) -> Result:
     InputFileError
         If the folder does not match its manifest (an edited manifest, a table
         whose bytes changed, a missing or an extra file): the file is named.
+
+    Notes
+    -----
+    Each table's ``attrs`` hold ``units`` (UDUNITS-2) and ``descriptions`` of its
+    columns, the ``site``, ``interval_minutes``, ``time_convention`` and ``table``.
+    One table alone can be read without fluxpart: ``pandas.read_parquet(FILE)`` gives
+    the same ``attrs`` (from the file key ``PANDAS_ATTRS``; tables written by 0.22.0 and
+    earlier lack it) with the stored index as a first column, and no check against the
+    manifest.
     """
     from .resultdir import read_folder
 
