@@ -775,8 +775,7 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
                          partitioning=ds.partitioning(pa.schema([("site", pa.string())]),
                                                       flavor="hive"),
                          partition_base_dir=str(path))
-    arrow = dataset.to_table()
-    frame = arrow.to_pandas()
+    frame = dataset.to_table().to_pandas()
     ordered = ["site", *[c for c in frame.columns if c != "site"]]
     frame = frame[ordered].sort_values(["site", _PERIOD_COLUMNS[table]],
                                        kind="stable").reset_index(drop=True)

@@ -698,11 +698,11 @@ def metadata_differences(stored: Path, recomputed: Path) -> list[tuple[str, str,
     def text(value):
         return value if isinstance(value, str) else json.dumps(value, sort_keys=True)
 
-    old, new = _schema_record(Path(stored)), _schema_record(Path(recomputed))
+    before, now = _schema_record(Path(stored)), _schema_record(Path(recomputed))
     copy = PANDAS_ATTRS_KEY.decode()
-    if copy not in old:
-        new.pop(copy, None)
-    found = field_differences(old, new, "")
+    if copy not in before:
+        now.pop(copy, None)
+    found = field_differences(before, now, "")
     return [(key, text(old), text(new)) for key, old, new in found]
 
 
