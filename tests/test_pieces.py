@@ -71,8 +71,8 @@ def _daytime(crop, breaks):
 
 
 # The share of each method's summed (after + before) RMS of daily errors left with the cut
-# must be below these. Measured ratios on seeds 0-5: nighttime GPP 0.18-0.34, Reco
-# 0.12-0.28; daytime GPP 0.10-0.43, Reco 0.18-0.65 (its days far from the harvest keep
+# must be below these. Measured ratios on seeds 0-5: nighttime GPP 0.18-0.32, Reco
+# 0.11-0.26; daytime GPP 0.11-0.40, Reco 0.18-0.65 (its days far from the harvest keep
 # the light-response fits' own scatter of about 0.1-0.3 µmol m-2 s-1 either way).
 _LEFT = {("_nighttime", "gpp"): 0.5, ("_nighttime", "reco"): 0.5,
          ("_daytime", "gpp"): 0.6, ("_daytime", "reco"): 0.8}
