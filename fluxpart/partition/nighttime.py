@@ -417,9 +417,10 @@ def fit_e0_windows(index, nee, temperature, is_night, *, e0_window_days=15.0,
         Largest accepted ``e0_se / e0`` [1]; 0.5, our choice.
     breaks : array_like of int, optional
         Record positions where a declared event starts a new piece of the record
-        (:func:`fluxpart.gapfill.event_breaks` of ``Config.events``): each window is cut to the piece
-        holding its centre (:func:`fluxpart.partition.pieces.centre_piece_windows`),
-        so its records lie on one side of every event.
+        (:func:`fluxpart.gapfill.event_breaks` of ``Config.events``): each window is
+        cut to the piece holding its centre
+        (:func:`fluxpart.partition.pieces.centre_piece_windows`), so its records lie
+        on one side of every event.
         Default None: no events, the windows as without this argument.
 
     Returns
@@ -592,9 +593,9 @@ def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
         Largest accepted ``e0_se / e0`` [1].
     breaks : array_like of int, optional
         Record positions where a declared event starts a new piece of the record
-        (:func:`fluxpart.gapfill.event_breaks` of ``Config.events``): a window an event falls in has
-        one Rref on each side of it (a harvest changes respiration at once, which
-        one Rref across it would read as a temperature response).
+        (:func:`fluxpart.gapfill.event_breaks` of ``Config.events``): a window an
+        event falls in has one Rref on each side of it (a harvest changes respiration
+        at once, which one Rref across it would read as a temperature response).
         Default None: no events, the windows as without this argument.
 
     Returns
@@ -1055,7 +1056,7 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
         Record positions where a declared event starts a new piece of the record
         (:func:`fluxpart.gapfill.event_breaks` of ``Config.events``): a window an
         event falls in is cut there, a part shorter than half a window joined to the
-        next window of its own piece (:func:`fluxpart.partition.pieces.cut_windows`),
+        neighbouring window on its own side (:func:`fluxpart.partition.pieces.cut_windows`),
         so every window's records lie on one side of every event and windows run
         from half to one and a half `rref_window_days`. Default None: no events.
 
