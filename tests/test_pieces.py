@@ -78,8 +78,8 @@ _LEFT = {("_nighttime", "gpp"): 0.5, ("_nighttime", "reco"): 0.5,
          ("_daytime", "gpp"): 0.6, ("_daytime", "reco"): 0.8}
 
 
-@pytest.mark.parametrize("seed", [0, 1, 2])
-def test_windows_cut_at_a_harvest_recover_the_fluxes_on_both_sides(seed):
+@pytest.mark.parametrize(("seed", "minutes"), [(0, 30), (1, 30), (2, 30), (0, 60)])
+def test_windows_cut_at_a_harvest_recover_the_fluxes_on_both_sides(seed, minutes):
     """Known-truth recovery (invented data, `_harvested_crop`): without the cut the Rref
     windows and the light-response windows around the harvest mix the green canopy and
     the stubble, and a record's parameters are interpolated between windows on both
@@ -87,8 +87,9 @@ def test_windows_cut_at_a_harvest_recover_the_fluxes_on_both_sides(seed):
     before it, and the days before take the stubble's (daily errors of -1.5 and +1.1
     µmol m-2 s-1 on the days beside it). With the windows cut (Config.events), the RMS
     of the daily errors over the 14 days on each side falls clearly for both methods'
-    GPP and Reco (figures in DEVELOPERS.md, Unreleased: events2)."""
-    crop = _harvested_crop(seed)
+    GPP and Reco (figures in DEVELOPERS.md, Unreleased: events2); hourly records alike
+    (seed 0 at 60 min: ratios 0.26 / 0.21 nighttime, 0.47 / 0.69 daytime)."""
+    crop = _harvested_crop(seed, minutes=minutes)
     for method in (_nighttime, _daytime):
         plain = method(crop, None)
         cut = method(crop, crop["breaks"])
