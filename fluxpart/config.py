@@ -444,8 +444,15 @@ class Config:
         A gap with too few measured records in its own piece to be filled (two events
         hours apart within an outage, an event near the record's end) is filled from the
         neighbouring piece, and warned about, rather than left unfilled (which would
-        leave the year's NEE sum NaN). The partitionings' windows (4 to
-        15 days) are not cut at events. A TOML date (``events = [2021-07-20]``) is read
+        leave the year's NEE sum NaN). The partitionings' windows are cut at events
+        too (after 0.22.0, round events2): no nighttime E0 or Rref window and no
+        daytime light-response window (nor the night windows of its E0) takes records
+        from both sides of an event, and a record's Rref, or light-response curves,
+        come from the windows of its own piece only (:mod:`fluxpart.partition.pieces`),
+        so the days after a harvest do not take the respiration and light response of
+        the canopy before it. A piece without a window of its own (events hours or a
+        day apart) takes the windows beside it and is warned about. The annual E0
+        stays one per calendar year. A TOML date (``events = [2021-07-20]``) is read
         as that date. Written into a result's settings only where some are declared.
 
     Notes

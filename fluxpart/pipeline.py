@@ -67,7 +67,7 @@ from .errors import (
     SpacingError,
 )
 from .fingerprint import load_blas_libraries
-from .partition import daytime, nighttime, respiration_form, temperature_choice
+from .partition import daytime, nighttime, pieces, respiration_form, temperature_choice
 from .result import Result, load  # noqa: F401  (re-exported: fluxpart.pipeline.load)
 from .site import Site
 from .variables import REQUIRED, VARIABLES
@@ -250,7 +250,7 @@ def _chosen_temperature(driver, index, screened, is_night, threshold, config):
                 screened["tair"].to_numpy(),
                 screened["tsoil"].to_numpy() if "tsoil" in screened.columns else None,
                 is_night, **_nighttime_settings(config, screened["rg"].to_numpy(dtype=float),
-                                                nearest_year)))
+                                                index, nearest_year)))
     except InsufficientDataError as error:
         # the nighttime method cannot fit on air temperature: the run's own fit says why
         # (and the run goes on with the daytime method where that one fits)
@@ -463,11 +463,13 @@ def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None):
         estimate=config.gapfill_estimate, breaks=gapfill.event_breaks(index, config.events))
 
 
-def _nighttime_settings(config, rg, nearest_year=False) -> dict:
+def _nighttime_settings(config, rg, index, nearest_year=False) -> dict:
     """Keyword settings of :func:`nighttime.partition_nighttime` from `config`, with the
-    measured global radiation `rg` [W m-2] its low-light Rref rule needs, and
-    `nearest_year`: a year without an E0 of its own takes the nearest year's."""
+    measured global radiation `rg` [W m-2] its low-light Rref rule needs, the events'
+    pieces of the record `index` (only where events are declared), and `nearest_year`:
+    a year without an E0 of its own takes the nearest year's."""
     extra = {"e0_nearest_year": True} if nearest_year else {}
+    extra.update(_event_cut(index, config))
     return {**extra, "e0_window_days": config.e0_window_days,
             "e0_window_step_days": config.e0_window_step_days,
             "e0_min_points": config.e0_min_points,
@@ -478,6 +480,12 @@ def _nighttime_settings(config, rg, nearest_year=False) -> dict:
             "rref_min_points": config.rref_min_points,
             "rref_low_light_rg": config.rref_low_light_rg, "rg": rg,
             "e0_method": config.e0_method}
+
+
+def _event_cut(index, config) -> dict:
+    """``breaks`` of the partitionings' windows where `config` declares events, else none
+    (a run without events calls them exactly as before)."""
+    return {"breaks": gapfill.event_breaks(index, config.events)} if config.events else {}
 
 
 def _respiration_temperature(table, name, delay, filled=False) -> np.ndarray:
@@ -527,7 +535,8 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
             frame.index, nee_measured, filled["value"].to_numpy(),
             _respiration_temperature(screened, temperature, delay), temperature_filled,
             is_night, respiration_driver=temperature,
-            **_nighttime_settings(config, screened["rg"].to_numpy(dtype=float), borrow))
+            **_nighttime_settings(config, screened["rg"].to_numpy(dtype=float), frame.index,
+                                  borrow))
 
     central = central_fill is None
     night, day, errors = method_failure.partition_both(
@@ -577,7 +586,7 @@ def _fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_fill
         consistency_z=config.daytime_consistency_z,
         rref_max_relative_error=config.daytime_rref_max_relative_error,
         night_in_fit=config.daytime_night_in_fit,
-        curvature=curvature)
+        curvature=curvature, **_event_cut(frame.index, config))
 
 
 def _daytime_error_model(index, nee_measured, screened, config):
@@ -750,6 +759,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     too_calm, nee_measured, filled, night, day = outcomes["central"]
     warnings.extend(gapfill.crossed_event_notes(frame.index, config.events,
                                                 filled.attrs.pop("events_crossed", [])))
+    if config.events:
+        warnings.extend(pieces.window_notes(frame.index, gapfill.event_breaks(
+            frame.index, config.events), night.rref_windows, day.parameters))
     day_evidence = _daytime_driver_evidence(frame, screened, filled_drivers,
                                             outcomes["central"], is_night, temperature, delay,
                                             config)
@@ -956,7 +968,7 @@ def _respiration_form(frame, filled_drivers, central, is_night, temperature, con
             _respiration_temperature(frame, temperature, delay),
             _respiration_temperature(filled_drivers, temperature, delay, True), is_night,
             respiration_driver=temperature,
-            **_nighttime_settings(config, frame["rg"].to_numpy(dtype=float),
+            **_nighttime_settings(config, frame["rg"].to_numpy(dtype=float), frame.index,
                                   method_failure.borrowed_e0(night)))
     except FluxpartError:
         exponential = None
@@ -1001,7 +1013,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                                 "reco_daytime": d.reco}, index=index)
             for name, (_, _, filled, n, d) in outcomes.items()}
     nee_filled = timeseries["nee_filled"].to_numpy(dtype=float)
-    settings = _nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float),
+    settings = _nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float), index,
                                    method_failure.borrowed_e0(night))
 
     def refit(fit, driver):
@@ -1048,7 +1060,8 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         fill_noise_sigma=None if error_model is None else error_model.predict(
             timeseries["nee_filled"].to_numpy(dtype=float)), respiration_form=form,
         day_driver_statistic=None if day_evidence is None else day_evidence[0],
-        day_evidence_critical=temperature_choice.DAYTIME_EVIDENCE_Z)
+        day_evidence_critical=temperature_choice.DAYTIME_EVIDENCE_Z,
+        **_event_cut(index, config))
     notes = []
     if (other_reco is not None and day_evidence is not None and inputs.driver_weight == 0.5
             and abs(day_evidence[0]) > temperature_choice.DAYTIME_EVIDENCE_Z):

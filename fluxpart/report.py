@@ -638,19 +638,51 @@ def _soil_regressor(written: Written) -> bool:
     return "tsoil_filled" in written.timeseries.columns and release >= (0, 22)
 
 
-def _fill_events(config: dict) -> str:
+def _fill_events(config: dict, windows_cut: bool = False) -> str:
     """The declared events no fill crosses, as the result's config says (none in a result
-    written before 0.22.0)."""
+    written before 0.22.0); `windows_cut`: the partitionings' windows were cut at them too
+    (:func:`_windows_cut`)."""
     events = list(config.get("events") or ())
     if not events:
         return ""
+    windows = (" The nighttime and daytime partitionings' windows were cut at the events "
+               "too: no window took records from both sides of one, and each record's "
+               "parameters came from the windows of its own piece (a piece without a window "
+               "of its own took those beside it, named among the warnings)." if windows_cut
+               else " The partitionings' windows (4 to 15 days) were not cut at the events "
+               "(a result written before they were).")
     return (f" Declared events ({', '.join(_setting_value(e) for e in events)}: a harvest, "
             "cut, fire or the like) cut the record into pieces; each NEE gap was filled from "
             "the records of its own piece only, or, where its piece held too few, from the "
-            "neighbouring piece as well (named among the warnings).")
+            "neighbouring piece as well (named among the warnings)." + windows)
 
 
-def _methods(config: dict, has_random: bool, soil: bool = False) -> tuple[str, list[str]]:
+def _windows_cut(written: Written) -> bool:
+    """Whether the result's partitioning windows were cut at its declared events: no
+    window of the daytime table (every window, rejected ones too) nor of the nighttime
+    Rref table holds an event strictly inside it. Written tables say it, not a version:
+    a result of 0.22.0 has daytime windows across each event inside the record."""
+    events = list(written.config.get("events") or ())
+    if not events:
+        return False
+    stamps = [pd.Timestamp(event) for event in events]
+    found = False
+    for name in ("parameters_daytime", "parameters_nighttime_rref"):
+        table = written.table(name)             # empty where the folder lacks it
+        if not len(table) or not {"window_start", "window_end"} <= set(table.columns):
+            continue
+        start, end = (pd.DatetimeIndex(table[column]) for column in ("window_start",
+                                                                       "window_end"))
+        start, end = (times.tz_localize(None) if times.tz is not None else times
+                      for times in (start, end))
+        if any(((start < stamp) & (end > stamp)).any() for stamp in stamps):
+            return False
+        found = True
+    return found
+
+
+def _methods(config: dict, has_random: bool, soil: bool = False,
+             windows_cut: bool = False) -> tuple[str, list[str]]:
     cited = ["papale2006", "reichstein2005", "lloyd1994", "lasslop2010", "kopp2011"]
     method = config.get("ustar_method", "moving_point")
     if method == "moving_point":
@@ -677,7 +709,7 @@ def _methods(config: dict, has_random: bool, soil: bool = False) -> tuple[str, l
         "Gap filling of NEE and the drivers by marginal distribution sampling (Reichstein et "
         "al. 2005, appendix): similar Rg, Tair and VPD within widening time windows, then the "
         f"mean diurnal course; fill quality classes A, B, C. {_fill_estimate(config, soil)}"
-        f"{_fill_events(config)}",
+        f"{_fill_events(config, windows_cut)}",
         "Nighttime partitioning: Lloyd–Taylor respiration (Lloyd & Taylor 1994); E0 per year "
         f"from the night data with a free Rref in each {_setting_value(config.get('e0_window_days'))}"
         f"-day window (e0_method = {_setting_value(config.get('e0_method'))}), Rref in "
@@ -907,7 +939,8 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
                  _site_table(written, interval) + _provenance(manifest), "details-provenance"),
     ]
     config = written.config
-    methods, cited = _methods(config, has_random, _soil_regressor(written))
+    methods, cited = _methods(config, has_random, _soil_regressor(written),
+                              _windows_cut(written))
     references = "".join(f"<li>{_e(_REFERENCES[key])}</li>" for key in cited)
     extra_caution = ("" if caution == CAUTION
                      else f'<p class="caution">{_e(caution)}</p>')

@@ -71,6 +71,7 @@ from .errors import (
     MissingColumnError,
     SpacingError,
 )
+from .partition import pieces
 from .schema import NOT_QUANTIFIED, RANDOM_ERROR_MODEL_COLUMNS, UNCERTAINTY_COLUMNS
 
 __all__ = [
@@ -1408,7 +1409,16 @@ def _retained_windows(windows: pd.DataFrame, value: str, se: str):
     return kept, np.where(resolved, relative, typical)
 
 
-def window_membership(index, windows: pd.DataFrame, value="rref", se="rref_se") -> tuple:
+def _nearest_centre(times, centres) -> np.ndarray:
+    """Position of the nearest of the increasing `centres` to each of `times`."""
+    right = np.clip(np.searchsorted(centres, times), 0, centres.size - 1)
+    left = np.clip(right - 1, 0, centres.size - 1)
+    return np.where(np.abs(times - centres[left]) <= np.abs(centres[right] - times), left,
+                    right)
+
+
+def window_membership(index, windows: pd.DataFrame, value="rref", se="rref_se",
+                      breaks=None) -> tuple:
     """Nearest window of each record and the window's relative standard error.
 
     Parameters
@@ -1419,6 +1429,10 @@ def window_membership(index, windows: pd.DataFrame, value="rref", se="rref_se") 
         Fitted windows with ``window_start``, ``window_end``, the parameter
         `value` and its standard error `se` (rejected windows, if an ``accepted``
         column says so, are left out).
+    breaks : array_like of int, optional
+        Record positions of declared events (:func:`fluxpart.gapfill.event_breaks`):
+        the nearest window of the record's own piece, whose parameters it takes
+        (:mod:`fluxpart.partition.pieces`); a piece without one, the nearest of all.
 
     Returns
     -------
@@ -1438,14 +1452,21 @@ def window_membership(index, windows: pd.DataFrame, value="rref", se="rref_se") 
     centres = (pd.DatetimeIndex(kept["window_start"]).asi8
                + pd.DatetimeIndex(kept["window_end"]).asi8) / 2.0
     times = index.asi8.astype(float)
-    right = np.clip(np.searchsorted(centres, times), 0, centres.size - 1)
-    left = np.clip(right - 1, 0, centres.size - 1)
-    nearest = np.where(np.abs(times - centres[left]) <= np.abs(centres[right] - times), left,
-                       right)
+    nearest = _nearest_centre(times, centres)
+    edges = pieces.break_times(times, breaks)
+    if len(edges):
+        record_piece, centre_piece = pieces.piece_of(times, edges), pieces.piece_of(centres,
+                                                                                    edges)
+        for piece in np.unique(record_piece):
+            own = np.flatnonzero(centre_piece == piece)
+            rows = record_piece == piece
+            if own.size:
+                nearest[rows] = own[_nearest_centre(times[rows], centres[own])]
     return nearest, relative[nearest]
 
 
-def interpolation_error(index, windows: pd.DataFrame, value="rref", se="rref_se") -> tuple:
+def interpolation_error(index, windows: pd.DataFrame, value="rref", se="rref_se",
+                        breaks=None) -> tuple:
     """Relative error of a window parameter interpolated between window centres.
 
     Parameters
@@ -1454,6 +1475,14 @@ def interpolation_error(index, windows: pd.DataFrame, value="rref", se="rref_se"
         Record times.
     windows : pandas.DataFrame
         Fitted windows as for :func:`window_membership` (rejected windows left out).
+    breaks : array_like of int, optional
+        Record positions of declared events (:func:`fluxpart.gapfill.event_breaks`),
+        where the methods interpolate within each piece only
+        (:mod:`fluxpart.partition.pieces`): the stretches and the bridge are those of
+        the record's own piece's centres (beyond its first and last, the random walk
+        from the nearest), and neighbouring windows on two sides of an event do not
+        enter the drift (the event's jump is no drift). A piece without a window of its
+        own takes the stretches of all centres, as its parameters do.
 
     Returns
     -------
@@ -1501,10 +1530,33 @@ def interpolation_error(index, windows: pd.DataFrame, value="rref", se="rref_se"
     log_value = np.log(kept[value].to_numpy(dtype=float))
     spacing = np.diff(centres)
     near = (spacing > 0) & (spacing <= 3.0 * np.median(spacing))
+    times = ((index - origin) / day).to_numpy()
+    edges = pieces.break_times(times, breaks)
+    if len(edges):
+        centre_piece = pieces.piece_of(centres, edges)
+        near &= centre_piece[:-1] == centre_piece[1:]
     excess = (np.square(np.diff(log_value)) - np.square(relative[:-1])
               - np.square(relative[1:]))[near]
     drift = max(float(excess.sum()), 0.0) / float(spacing[near].sum()) if near.any() else 0.0
-    times = ((index - origin) / day).to_numpy()
+    interval, variance = _bridge(times, centres, drift)
+    if len(edges):
+        record_piece = pieces.piece_of(times, edges)
+        # a piece without a window of its own keeps the stretches of all centres, as
+        # labels apart from those of the pieces' own (the labels only group records)
+        interval = interval + centres.size + len(edges) + 2
+        for piece in np.unique(record_piece):
+            own = np.flatnonzero(centre_piece == piece)
+            if own.size:
+                rows = record_piece == piece
+                local, variance[rows] = _bridge(times[rows], centres[own], drift)
+                interval[rows] = local + own[0] + piece
+    return interval, np.sqrt(np.maximum(variance, 0.0)), drift
+
+
+def _bridge(times, centres, drift) -> tuple:
+    """Stretch between the increasing `centres` (0 .. len) of each time and the variance
+    of the interpolated log parameter there: a Brownian bridge between the centres, a
+    random walk from the nearest beyond the first and last (:func:`interpolation_error`)."""
     interval = np.searchsorted(centres, times, side="right")   # 0 .. len(centres)
     left = centres[np.clip(interval - 1, 0, centres.size - 1)]
     right = centres[np.clip(interval, 0, centres.size - 1)]
@@ -1513,7 +1565,7 @@ def interpolation_error(index, windows: pd.DataFrame, value="rref", se="rref_se"
         bridge = (times - left) * (right - times) / (right - left)
     variance = drift * np.where(inside, bridge, np.minimum(np.abs(times - left),
                                                            np.abs(times - right)))
-    return interval, np.sqrt(np.maximum(variance, 0.0)), drift
+    return interval, variance
 
 
 # --------------------------------------------------------------------------- combination
@@ -1881,7 +1933,7 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
                   rref_window_days=4.0, other_driver_reco=None,
                   nee_measured=None, fill_window_days=None,
                   fill_noise_sigma=None, respiration_form=None, day_driver_statistic=None,
-                  day_evidence_critical=1.96) -> UncertaintyInputs:
+                  day_evidence_critical=1.96, breaks=None) -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -1924,6 +1976,10 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         (:func:`fluxpart.partition.temperature_choice.daytime_evidence`); where it
         contradicts the night records, the driver weight is 1/2
         (:func:`combined_driver_weight`, with `day_evidence_critical`).
+    breaks : array_like of int, optional
+        Record positions of declared events (:func:`fluxpart.gapfill.event_breaks`):
+        the windows' parts within each piece, as the methods take their parameters
+        (:func:`window_membership`, :func:`interpolation_error`). Default None.
 
     Returns
     -------
@@ -1937,11 +1993,13 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
     delta = e0_sensitivity(fluxes["reco_nighttime"].to_numpy(dtype=float), temperature,
                            is_night, nighttime_result.e0, np.nan_to_num(per_record_sigma),
                            blocks)
-    night_window, night_se = window_membership(index, nighttime_result.rref_windows)
-    day_window, day_se = window_membership(index, daytime_parameters)
-    night_interval, night_interpolation, _ = interpolation_error(index,
-                                                                 nighttime_result.rref_windows)
-    day_interval, day_interpolation, _ = interpolation_error(index, daytime_parameters)
+    # without events exactly the calls of before
+    cut = {} if breaks is None or not len(breaks) else {"breaks": breaks}
+    night_window, night_se = window_membership(index, nighttime_result.rref_windows, **cut)
+    day_window, day_se = window_membership(index, daytime_parameters, **cut)
+    night_interval, night_interpolation, _ = interpolation_error(
+        index, nighttime_result.rref_windows, **cut)
+    day_interval, day_interpolation, _ = interpolation_error(index, daytime_parameters, **cut)
     return UncertaintyInputs(
         measured=np.asarray(measured, dtype=bool), noise_sigma=np.asarray(noise_sigma, float),
         is_night=np.asarray(is_night, dtype=bool), fluxes=fluxes,

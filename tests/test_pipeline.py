@@ -624,3 +624,9 @@ def test_events_hours_apart_within_an_outage_leave_no_nee_unfilled():
                str(w.message)]
     assert len(crossed) == 1
     assert "6 NEE records from 2021-07-20 10:00 to 2021-07-20 12:30" in crossed[0]
+    # the 3 h between the events hold no window of either partitioning (round events2):
+    # their GPP and Reco take the windows beside them, named
+    pieces = [str(w.message) for w in caught if "2021-07-20 10:00 to 2021-07-20 12:30 "
+              "(interval starts) has no" in str(w.message)]
+    assert len(pieces) == 2
+    assert np.isfinite(result.annual[["gpp_nighttime", "gpp_daytime"]].to_numpy()).all()

@@ -1188,6 +1188,32 @@ def test_methods_name_the_declared_events_only_where_the_result_has_them():
     assert "events" not in gap_filling_item({"events": []}).lower()
 
 
+def test_methods_say_the_windows_were_cut_only_where_the_tables_show_it():
+    """Since round events2 the partitionings' windows are cut at declared events too; the report
+    says so only where the written window tables show it (no window holds an event
+    strictly inside it; a window may end or start at one), so a result of 0.22.0, whose
+    daytime windows run across its events, is described as it was made."""
+    def item(config, windows_cut):
+        listed, _ = report._methods(config, False, windows_cut=windows_cut)
+        return next(text for text in listed.split("<li>") if text.startswith("Gap filling"))
+
+    config = {"events": ["2021-10-02"]}
+
+    def written(starts, ends):
+        table = pd.DataFrame({"window_start": pd.to_datetime(starts),
+                              "window_end": pd.to_datetime(ends)})
+        return report.Written(manifest={}, tables={"parameters_daytime": table},
+                              config=config)
+
+    cut = written(["2021-09-28", "2021-10-02"], ["2021-10-02", "2021-10-04"])
+    across = written(["2021-09-28", "2021-09-30"], ["2021-10-02", "2021-10-04"])
+    assert report._windows_cut(cut) and not report._windows_cut(across)
+    assert not report._windows_cut(report.Written(manifest={}, tables={}, config=config))
+    assert "windows were cut at the events too" in item(config, True)
+    assert "were not cut at the events" in item(config, False)
+    assert "cut at the events" not in item({}, False)
+
+
 def test_methods_name_the_soil_regressor_of_night_fills_only_where_it_was_used():
     """A result of 0.22.0 or later with a soil temperature had its night NEE fills moved by
     their slope on it (``fluxpart.gapfill.fill_marginal``); the methods say so there only:

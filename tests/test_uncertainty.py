@@ -1165,3 +1165,50 @@ def test_gapfill_model_with_unknown_noise_subtracts_nothing():
         assert np.isfinite(unknown[column])
         assert unknown[column] == zero[column]
     assert unknown["independent_variance"] == pytest.approx(1.0, rel=0.2)   # planted a = 1
+
+
+def test_window_parts_stay_within_the_pieces_between_events():
+    """Declared events (Config.events, breaks): the methods take a record's parameters
+    from the windows of its own piece only (fluxpart.partition.pieces), so its window
+    parts do too. Invented windows: Rref 3.0, 3.1, 3.0 before an event on day 11 and
+    1.0, 1.05, 1.0 after it. The harvest's jump ln(3) is no drift of the random walk:
+    with the breaks the drift is the within-piece pairs' (computed here by its formula,
+    Σ(Δ ln)² − Σ(r1² + r2²) over Σ Δt), without them the jump inflates it. Beyond its
+    piece's last centre a record's variance is the random walk's from that centre,
+    q |t − c| (the Brownian bridge's end, Ross 1996 ch. 8 (m)), a stretch of its own; and
+    a record just after the event counts the first window after it as its own, though
+    the last one before it is nearer."""
+    from fluxpart.uncertainty import interpolation_error, window_membership
+
+    starts = pd.to_datetime(["2021-01-01", "2021-01-05", "2021-01-09", "2021-01-12",
+                             "2021-01-16", "2021-01-20"])
+    ends = pd.to_datetime(["2021-01-05", "2021-01-09", "2021-01-12", "2021-01-16",
+                           "2021-01-20", "2021-01-24"])
+    rref = np.array([3.0, 3.1, 3.0, 1.0, 1.05, 1.0])
+    windows = pd.DataFrame({"window_start": starts, "window_end": ends, "rref": rref,
+                            "rref_se": 0.01 * rref})
+    index = pd.date_range("2021-01-01", periods=23 * 24, freq="h")
+    breaks = np.array([index.get_loc(pd.Timestamp("2021-01-12"))])
+    centres = ((starts - index[0]) / pd.Timedelta(days=1)).to_numpy() + (
+        (ends - starts) / pd.Timedelta(days=1)).to_numpy() / 2
+    pairs = [0, 1, 3, 4]                                   # neighbours on one side
+    log_steps = np.diff(np.log(rref))[pairs]
+    expected = (np.sum(log_steps ** 2) - len(pairs) * 2 * 0.01 ** 2) / np.sum(
+        np.diff(centres)[pairs])
+    interval, sd, drift = interpolation_error(index, windows, breaks=breaks)
+    assert drift == pytest.approx(expected, rel=1e-12)
+    assert interpolation_error(index, windows)[2] > 20 * drift
+    late = index.get_loc(pd.Timestamp("2021-01-11 18:00"))     # 1.25 days after centre 9.5
+    assert sd[late] ** 2 == pytest.approx(drift * 1.25, rel=1e-12)
+    after = index.get_loc(pd.Timestamp("2021-01-12 04:00"))    # before the first centre after
+    assert interval[late] != interval[after]
+    assert sd[after] ** 2 == pytest.approx(drift * (centres[3] - 11 - 4 / 24), rel=1e-12)
+    nearest, _ = window_membership(index, windows)
+    own, _ = window_membership(index, windows, breaks=breaks)
+    assert nearest[after] == 2 and own[after] == 3
+    np.testing.assert_array_equal(own[:breaks[0]], nearest[:breaks[0]])
+    # without events: the same arrays as before, bit for bit
+    for none in (None, []):
+        for got, plain in zip(interpolation_error(index, windows, breaks=none),
+                              interpolation_error(index, windows), strict=True):
+            np.testing.assert_array_equal(got, plain)

@@ -187,6 +187,7 @@ from ..responses import (
     LASSLOP_VPD0_HPA,
     light_response,
 )
+from . import pieces
 
 __all__ = ["DaytimeResult", "PARAMETER_COLUMNS", "STATUSES", "partition_daytime"]
 
@@ -287,7 +288,7 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
                       consistency_z=1.96, rref_max_relative_error=0.5,
                       night_in_fit=False, curvature=0.0, max_iterations=200,
                       tref_kelvin=LLOYD_TAYLOR_TREF_KELVIN,
-                      t0_kelvin=LLOYD_TAYLOR_T0_KELVIN) -> DaytimeResult:
+                      t0_kelvin=LLOYD_TAYLOR_T0_KELVIN, breaks=None) -> DaytimeResult:
     """Partition NEE into GPP and Reco by the daytime light-response method.
 
     Parameters
@@ -386,6 +387,17 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
     tref_kelvin, t0_kelvin : float, optional
         Lloyd–Taylor reference temperature and T0 [K]; defaults 283.15 K and
         227.13 K, Lloyd & Taylor (1994).
+    breaks : array_like of int, optional
+        Record positions where a declared event (harvest, cut, fire, thinning;
+        ``Config.events`` through :func:`fluxpart.gapfill.event_breaks`) starts a new
+        piece of the record. Each window, and the night windows of its E0 estimate,
+        is cut to the piece holding its centre
+        (:func:`fluxpart.partition.pieces.centre_piece_windows`), and each record
+        takes the curves of the windows in use of its own piece only
+        (:func:`fluxpart.partition.pieces.piece_neighbours`; a piece without one takes
+        those beside it, across the events, named by
+        :func:`fluxpart.partition.pieces.window_notes`). The E0 pool stays per
+        calendar year. Default None: no events.
 
     Returns
     -------
@@ -463,6 +475,7 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
     arrhenius = _arrhenius(temperature, tref_kelvin, t0_kelvin)
     measured = np.isfinite(nee) & np.isfinite(arrhenius)
     data = {"days": days, "origin": index[0].normalize(), "nee": nee, "rg": rg, "vpd": vpd,
+            "edges": pieces.break_times(days, breaks),
             "temperature": temperature, "arrhenius": arrhenius, "supplied_e0": supplied_e0,
             "usable_day": measured & ~night & np.isfinite(vpd) & np.isfinite(rg) & (rg > 0),
             "usable_night": measured & night}
@@ -505,6 +518,9 @@ def _prepare(data, weight, settings) -> dict:
     supplied_e0 = data["supplied_e0"]
     vpd0 = settings["vpd0"]
     starts, ends = _window_bounds(days, settings["window_days"], settings["window_step_days"])
+    edges = data["edges"]
+    if len(edges):
+        starts, ends = pieces.centre_piece_windows(starts, ends, edges)
     centres = (starts + ends) / 2.0
     if supplied_e0 is None:
         centre_years = (data["origin"] + pd.to_timedelta(centres, unit="D")).year.to_numpy()
@@ -513,7 +529,8 @@ def _prepare(data, weight, settings) -> dict:
                             settings["window_days"], settings["window_step_days"],
                             settings["e0_min_points"],
                             settings["e0_min_temperature_range"], settings["e0_bounds"],
-                            settings["e0_max_relative_error"], settings["e0_fallback"])
+                            settings["e0_max_relative_error"], settings["e0_fallback"],
+                            edges=edges)
     else:
         e0_fit = None
     windows = _gather_windows(days, starts, ends, usable_day, usable_night, nee, data["rg"],
@@ -563,7 +580,7 @@ def _partition(data, weight, settings) -> dict:
             vpd0=vpd0, max_iterations=max_iterations)
 
     status, reason = _reject_runaway_curves(status, reason, theta, windows["e0"], days,
-                                            centres, arrhenius, supplied_e0)
+                                            centres, arrhenius, supplied_e0, data["edges"])
     used = status != "rejected"
     theta[~fitted] = np.nan
     if not used.any():
@@ -575,7 +592,8 @@ def _partition(data, weight, settings) -> dict:
             f"the record needs measured daytime NEE (at least {settings['min_points']} "
             "records in some window) and night NEE.")
 
-    before, after, share = _neighbours(days, centres[used])
+    before, after, share = pieces.piece_neighbours(days, centres[used], data["edges"],
+                                                   _neighbours)
     window_e0 = windows["e0"][used]
     e0_record = (supplied_e0 if supplied_e0 is not None
                  else (1.0 - share) * window_e0[before] + share * window_e0[after])
@@ -796,7 +814,7 @@ def _padded_positions(days, starts, ends):
 
 def _window_e0(days, centres, centre_years, usable_night, nee, arrhenius, temperature, weight,
                widths, block_days, step_days, min_points, min_range, bounds, max_relative_error,
-               fallback) -> dict:
+               fallback, edges=()) -> dict:
     """E0 of every window: the inverse-variance mean of the year's window estimates.
 
     Each window's own estimate comes from the night records of the narrowest width
@@ -804,6 +822,8 @@ def _window_e0(days, centres, centre_years, usable_night, nee, arrhenius, temper
     Rref per `block_days` block; the choice looks at the data's information, never at
     the estimate. The estimates of a calendar year (by window centre) are pooled by
     inverse variance; a year whose pool is not accepted takes the pool of all years.
+    `edges` (the start days of pieces after events): each night window is cut to the
+    piece holding its centre.
     """
     count = len(centres)
     own = {"e0": np.full(count, np.nan), "e0_se": np.full(count, np.nan),
@@ -815,7 +835,11 @@ def _window_e0(days, centres, centre_years, usable_night, nee, arrhenius, temper
         if len(todo) == 0:
             break
         low = centres[todo] - width / 2.0
-        positions, inside = _padded_positions(night_days, low, low + width)
+        if len(edges):
+            positions, inside = _padded_positions(
+                night_days, *pieces.centre_piece_windows(low, low + width, edges))
+        else:
+            positions, inside = _padded_positions(night_days, low, low + width)
         records = night_positions[positions]
         t = temperature[records]
         points = inside.sum(axis=1)
@@ -1461,7 +1485,7 @@ def _saturated_below_light(theta, windows):
 
 
 def _reject_runaway_curves(status, reason, theta, window_e0, days, centres, arrhenius,
-                           supplied_e0):
+                           supplied_e0, edges=()):
     """Reject the windows in use whose respiration curve exceeds ``_MAX_CURVE_RESPIRATION``
     (or is not finite) at a record it is applied to, until none does (module docstring)."""
     status, reason = status.copy(), reason.copy()
@@ -1469,7 +1493,7 @@ def _reject_runaway_curves(status, reason, theta, window_e0, days, centres, arrh
         used = np.flatnonzero(status != "rejected")
         if used.size == 0:
             break
-        before, after, _ = _neighbours(days, centres[used])
+        before, after, _ = pieces.piece_neighbours(days, centres[used], edges, _neighbours)
         runaway = np.zeros(used.size, dtype=bool)
         for side in (before, after):
             window = used[side]

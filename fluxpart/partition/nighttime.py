@@ -52,6 +52,7 @@ from ..errors import (
 )
 from ..responses import lloyd_taylor, lloyd_taylor_derivatives
 from ..variables import VARIABLES
+from . import pieces
 
 __all__ = [
     "LOW_LIGHT_MIN_RUN_DAYS",
@@ -243,6 +244,14 @@ def _window_frame(anchor, starts_seconds, length_seconds, **columns) -> pd.DataF
                          "window_centre": starts + length / 2, **columns})
 
 
+def _bounded_frame(anchor, starts_seconds, ends_seconds, **columns) -> pd.DataFrame:
+    """Window start, end and centre of windows of their own lengths (cut at events)."""
+    starts = anchor + pd.to_timedelta(starts_seconds, unit="s")
+    ends = anchor + pd.to_timedelta(ends_seconds, unit="s")
+    return pd.DataFrame({"window_start": starts, "window_end": ends,
+                         "window_centre": starts + (ends - starts) / 2, **columns})
+
+
 def _gather(window_lo, window_hi, *columns):
     """Pad the records of every window into (windows, points) arrays and a mask."""
     counts = window_hi - window_lo
@@ -378,7 +387,8 @@ def _usable(nee, temperature, is_night):
 
 def fit_e0_windows(index, nee, temperature, is_night, *, e0_window_days=15.0,
                    e0_window_step_days=5.0, e0_min_points=6, e0_min_temperature_range=5.0,
-                   e0_bounds=(30.0, 450.0), e0_max_relative_error=0.5) -> pd.DataFrame:
+                   e0_bounds=(30.0, 450.0), e0_max_relative_error=0.5,
+                   breaks=None) -> pd.DataFrame:
     """Fit Lloyd–Taylor (Rref, E0) to measured night NEE in short moving windows.
 
     Parameters
@@ -405,6 +415,13 @@ def fit_e0_windows(index, nee, temperature, is_night, *, e0_window_days=15.0,
         Accepted E0 [K]; (30, 450) K, Reichstein et al. (2005) (m).
     e0_max_relative_error : float, optional
         Largest accepted ``e0_se / e0`` [1]; 0.5, our choice.
+    breaks : array_like of int, optional
+        Record positions where a declared event starts a new piece of the record
+        (:func:`fluxpart.gapfill.event_breaks` of ``Config.events``): each window is
+        cut to the piece holding its centre
+        (:func:`fluxpart.partition.pieces.centre_piece_windows`), so its records lie
+        on one side of every event.
+        Default None: no events, the windows as without this argument.
 
     Returns
     -------
@@ -478,9 +495,13 @@ def fit_e0_windows(index, nee, temperature, is_night, *, e0_window_days=15.0,
     end = _record_end_seconds(seconds)
     n_windows = max(1, math.ceil((end - window_seconds) / step_seconds) + 1)
     starts = np.arange(n_windows) * step_seconds
+    edges = pieces.break_times(seconds, breaks)
+    ends = starts + window_seconds
+    if len(edges):
+        starts, ends = pieces.centre_piece_windows(starts, ends, edges)
     point_seconds = seconds[usable]
     lo = np.searchsorted(point_seconds, starts, side="left")
-    hi = np.searchsorted(point_seconds, starts + window_seconds, side="left")
+    hi = np.searchsorted(point_seconds, ends, side="left")
     counts, mask, (temp_pad, flux_pad) = _gather(lo, hi, temperature[usable], nee[usable])
 
     with np.errstate(invalid="ignore"):
@@ -515,6 +536,14 @@ def fit_e0_windows(index, nee, temperature, is_night, *, e0_window_days=15.0,
          "Rref not positive",
          f"E0 relative standard error above {max_relative:g}"],
         default="")
+    columns = {"points": counts.astype("int64"), "temperature_range": temperature_range,
+               "e0": e0, "e0_se": e0_se, "rref": rref, "rref_se": rref_se,
+               "accepted": reason == "", "reason": pd.Series(reason, dtype="str")}
+    if len(edges):
+        frame = _bounded_frame(anchor, starts, ends, **columns)
+        frame.insert(3, "year", pd.DatetimeIndex(frame["window_centre"]).year.to_numpy()
+                     .astype("int64"))
+        return frame
     centres = anchor + pd.to_timedelta(starts, unit="s") \
         + pd.Timedelta(seconds=float(window_seconds)) / 2
     return _window_frame(anchor, starts, window_seconds,
@@ -537,7 +566,7 @@ _PROFILE_BLOCK_ELEMENTS = 1 << 14
 
 def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
                  e0_min_points=6, e0_bounds=(30.0, 450.0),
-                 e0_max_relative_error=0.5) -> pd.DataFrame:
+                 e0_max_relative_error=0.5, breaks=None) -> pd.DataFrame:
     """One E0 per calendar year, fitted jointly with a free Rref in every short window.
 
     The fit is the Laplace maximum likelihood (least absolute deviations).
@@ -562,6 +591,12 @@ def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
         Range searched for E0 [K]; a minimum on a bound is not accepted.
     e0_max_relative_error : float, optional
         Largest accepted ``e0_se / e0`` [1].
+    breaks : array_like of int, optional
+        Record positions where a declared event starts a new piece of the record
+        (:func:`fluxpart.gapfill.event_breaks` of ``Config.events``): a window an
+        event falls in has one Rref on each side of it (a harvest changes respiration
+        at once, which one Rref across it would read as a temperature response).
+        Default None: no events, the windows as without this argument.
 
     Returns
     -------
@@ -639,7 +674,12 @@ def fit_e0_joint(index, nee, temperature, is_night, *, e0_window_days=15.0,
     max_relative = _check_positive("e0_max_relative_error", e0_max_relative_error)
 
     usable = _usable(nee, temperature, is_night)
-    window = np.floor(_seconds_since(index, _window_anchor(index)) / window_seconds)
+    seconds = _seconds_since(index, _window_anchor(index))
+    window = np.floor(seconds / window_seconds)
+    edges = pieces.break_times(seconds, breaks)
+    if len(edges):
+        # one key per (piece, window), increasing in time: pieces and windows both are
+        window = np.searchsorted(edges, seconds, side="right") * (window.max() + 1) + window
     years = index.year.to_numpy()
     grid = np.arange(low, high + 0.5 * _JOINT_GRID_STEP, _JOINT_GRID_STEP)
     rows = []
@@ -983,7 +1023,8 @@ def _no_e0_message(year: int, night_records: int, candidates: pd.DataFrame) -> s
 # Rref windows
 # --------------------------------------------------------------------------- #
 def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=4.0,
-                     rref_min_points=6, rg=None, low_light_rg=0.0) -> pd.DataFrame:
+                     rref_min_points=6, rg=None, low_light_rg=0.0,
+                     breaks=None) -> pd.DataFrame:
     """Fit the reference respiration Rref with E0 fixed, in consecutive windows.
 
     Parameters
@@ -1011,6 +1052,13 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
         measured NEE at ``Rg < low_light_rg`` [W m-2] (night records included) with
         a straight light response, ``NEE = Rref f - a Rg`` (see Notes). Default 0:
         off (night records only).
+    breaks : array_like of int, optional
+        Record positions where a declared event starts a new piece of the record
+        (:func:`fluxpart.gapfill.event_breaks` of ``Config.events``): a window an
+        event falls in is cut there, a part shorter than half a window joined to the
+        neighbouring window on its own side (:func:`fluxpart.partition.pieces.cut_windows`),
+        so every window's records lie on one side of every event and windows run
+        from half to one and a half `rref_window_days`. Default None: no events.
 
     Returns
     -------
@@ -1080,9 +1128,15 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
     end = _record_end_seconds(seconds)
     n_windows = max(1, math.ceil(end / window_seconds))
     starts = np.arange(n_windows) * window_seconds
+    edges = pieces.break_times(seconds, breaks)
+    if len(edges):
+        starts, ends = pieces.cut_windows(starts, window_seconds, edges)
+        n_windows = starts.size
+    else:
+        ends = starts + window_seconds
     point_seconds = seconds[usable]
     lo = np.searchsorted(point_seconds, starts, side="left")
-    hi = np.searchsorted(point_seconds, starts + window_seconds, side="left")
+    hi = np.searchsorted(point_seconds, ends, side="left")
     shape_all = lloyd_taylor(temperature[usable], 1.0, e0[usable])
     counts, mask, (shape, flux, e0_pad) = _gather(lo, hi, shape_all, nee[usable], e0[usable])
 
@@ -1096,10 +1150,10 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
         mean_e0 = np.sum(e0_pad, axis=1) / counts
     keep = (counts >= min_points) & np.isfinite(rref) & (rref >= 0)
     source = np.full(n_windows, "night", dtype=object)
-    long_runs = _long_runs(~keep, window_seconds)
+    long_runs = _long_runs(~keep, window_seconds, (ends - starts) if len(edges) else None)
     if rg is not None and low_light_rg > 0 and long_runs.any():
         rg = _as_float("rg", rg, length)
-        low = _low_light_rref(seconds, starts, window_seconds, nee, temperature, is_night, e0,
+        low = _low_light_rref(seconds, starts, ends, nee, temperature, is_night, e0,
                               rg, low_light_rg, min_points)
         take = long_runs & np.isfinite(low["rref"])
         rref, rref_se = np.where(take, low["rref"], rref), np.where(take, low["rref_se"], rref_se)
@@ -1113,24 +1167,32 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
             f"{min_points} or more usable night records and a non-negative Rref "
             f"({int(usable.sum())} usable night records in all). Lower rref_min_points or "
             "supply more measured night NEE.")
+    if len(edges):
+        return _bounded_frame(anchor, starts[keep], ends[keep],
+                              points=counts[keep].astype("int64"), rref=rref[keep],
+                              rref_se=rref_se[keep], e0=mean_e0[keep],
+                              source=source[keep].astype(str))
     return _window_frame(anchor, starts[keep], window_seconds,
                          points=counts[keep].astype("int64"), rref=rref[keep],
                          rref_se=rref_se[keep], e0=mean_e0[keep],
                          source=source[keep].astype(str))
 
 
-def _long_runs(failed, window_seconds) -> np.ndarray:
+def _long_runs(failed, window_seconds, lengths=None) -> np.ndarray:
     """Windows in runs of consecutive failed windows spanning at least
-    `LOW_LIGHT_MIN_RUN_DAYS` (shorter runs keep the interpolation across them)."""
+    `LOW_LIGHT_MIN_RUN_DAYS` (shorter runs keep the interpolation across them);
+    `lengths`: each window's own length [s] where events cut them."""
     edges = np.flatnonzero(np.diff(np.concatenate([[0], failed.astype(np.int8), [0]])))
     out = np.zeros(len(failed), dtype=bool)
     for first, stop in zip(edges[::2], edges[1::2], strict=True):
-        if (stop - first) * window_seconds >= LOW_LIGHT_MIN_RUN_DAYS * _SECONDS_PER_DAY:
+        span = ((stop - first) * window_seconds if lengths is None
+                else float(np.sum(lengths[first:stop])))
+        if span >= LOW_LIGHT_MIN_RUN_DAYS * _SECONDS_PER_DAY:
             out[first:stop] = True
     return out
 
 
-def _low_light_rref(seconds, starts, window_seconds, nee, temperature, is_night, e0, rg,
+def _low_light_rref(seconds, starts, ends, nee, temperature, is_night, e0, rg,
                     low_light_rg, min_points) -> dict:
     """Rref per window from NEE = Rref f - a Rg at low light (see fit_rref_windows)."""
     light = np.where(is_night, 0.0, rg)
@@ -1138,7 +1200,7 @@ def _low_light_rref(seconds, starts, window_seconds, nee, temperature, is_night,
               & np.isfinite(light) & (light >= 0.0) & (light < low_light_rg))
     point_seconds = seconds[usable]
     lo = np.searchsorted(point_seconds, starts, side="left")
-    hi = np.searchsorted(point_seconds, starts + window_seconds, side="left")
+    hi = np.searchsorted(point_seconds, ends, side="left")
     shape_all = lloyd_taylor(temperature[usable], 1.0, e0[usable])
     counts, mask, (f, x, y, e0_pad) = _gather(lo, hi, shape_all, light[usable], nee[usable],
                                               e0[usable])
@@ -1158,7 +1220,7 @@ def _low_light_rref(seconds, starts, window_seconds, nee, temperature, is_night,
             "points": counts, "e0": mean_e0}
 
 
-def rref_per_record(index, rref_windows: pd.DataFrame) -> np.ndarray:
+def rref_per_record(index, rref_windows: pd.DataFrame, breaks=None) -> np.ndarray:
     """Interpolate Rref linearly in time between window centres to every record.
 
     Parameters
@@ -1167,6 +1229,13 @@ def rref_per_record(index, rref_windows: pd.DataFrame) -> np.ndarray:
         Start of each interval.
     rref_windows : pandas.DataFrame
         Output of :func:`fit_rref_windows` (columns ``window_centre``, ``rref``).
+    breaks : array_like of int, optional
+        Record positions where a declared event starts a new piece of the record
+        (:func:`fluxpart.gapfill.event_breaks`): each record takes Rref only from the
+        windows centred in its own piece, constant beyond the piece's first and last
+        centre; a piece without a window takes the interpolation over the windows
+        beside it, across the events (:func:`fluxpart.partition.pieces.piece_interp`;
+        named by :func:`fluxpart.partition.pieces.window_notes`). Default None.
 
     Returns
     -------
@@ -1184,8 +1253,12 @@ def rref_per_record(index, rref_windows: pd.DataFrame) -> np.ndarray:
         raise InsufficientDataError("Rref interpolation: no Rref window to interpolate from")
     anchor = index[0]
     centres = _seconds_since(pd.DatetimeIndex(rref_windows["window_centre"]), anchor)
-    return np.interp(_seconds_since(index, anchor), centres,
-                     rref_windows["rref"].to_numpy(dtype=float))
+    seconds = _seconds_since(index, anchor)
+    edges = pieces.break_times(seconds, breaks)
+    if len(edges):
+        return pieces.piece_interp(seconds, centres, rref_windows["rref"].to_numpy(dtype=float),
+                                   edges)[0]
+    return np.interp(seconds, centres, rref_windows["rref"].to_numpy(dtype=float))
 
 
 # --------------------------------------------------------------------------- #
@@ -1198,7 +1271,8 @@ def partition_nighttime(index, nee_measured, nee_filled, temperature_measured,
                         e0_max_relative_error=0.5, e0_best_windows=3, e0_fallback=None,
                         rref_window_days=4.0, rref_min_points=6,
                         respiration_driver="tair", e0_method="joint", rg=None,
-                        rref_low_light_rg=0.0, e0_nearest_year=False) -> NighttimeResult:
+                        rref_low_light_rg=0.0, e0_nearest_year=False,
+                        breaks=None) -> NighttimeResult:
     """Partition NEE into Reco and GPP by the nighttime method of Reichstein et al. (2005).
 
     Parameters
@@ -1240,6 +1314,13 @@ e0_bounds, e0_max_relative_error
     e0_nearest_year : bool, optional
         A year without an E0 of its own takes the nearest year's (``nearest_year``
         of :func:`annual_e0`); default False.
+    breaks : array_like of int, optional
+        Record positions where a declared event (harvest, cut, fire, thinning;
+        ``Config.events`` through :func:`fluxpart.gapfill.event_breaks`) starts a new
+        piece of the record: no E0 or Rref window takes records from both sides of
+        an event, and a record's Rref comes from the windows of its own piece only
+        (:func:`fit_e0_windows`, :func:`fit_e0_joint`, :func:`fit_rref_windows`,
+        :func:`rref_per_record`). E0 stays one per calendar year. Default None.
 
     Returns
     -------
@@ -1293,12 +1374,14 @@ e0_bounds, e0_max_relative_error
                                            length)
     temperature_filled = _as_temperature("temperature_filled", temperature_filled, length)
     is_night = _as_night("is_night", is_night, length)
+    # without events the window functions are called exactly as before
+    cut = {} if breaks is None or not len(breaks) else {"breaks": breaks}
 
     windows = fit_e0_windows(
         index, nee_measured, temperature_measured, is_night, e0_window_days=e0_window_days,
         e0_window_step_days=e0_window_step_days, e0_min_points=e0_min_points,
         e0_min_temperature_range=e0_min_temperature_range, e0_bounds=e0_bounds,
-        e0_max_relative_error=e0_max_relative_error)
+        e0_max_relative_error=e0_max_relative_error, **cut)
     years = index.year.to_numpy()
     usable = _usable(nee_measured, temperature_measured, is_night)
     record_years = np.unique(years)
@@ -1308,7 +1391,8 @@ e0_bounds, e0_max_relative_error
     if e0_method == "joint":
         joint = fit_e0_joint(index, nee_measured, temperature_measured, is_night,
                              e0_window_days=e0_window_days, e0_min_points=e0_min_points,
-                             e0_bounds=e0_bounds, e0_max_relative_error=e0_max_relative_error)
+                             e0_bounds=e0_bounds, e0_max_relative_error=e0_max_relative_error,
+                             **cut)
     e0_annual = annual_e0(windows, e0_best_windows=e0_best_windows, e0_fallback=e0_fallback,
                           night_records=night_records, joint=joint,
                           nearest_year=e0_nearest_year)
@@ -1316,8 +1400,8 @@ e0_bounds, e0_max_relative_error
     rref_windows = fit_rref_windows(index, nee_measured, temperature_measured, is_night, e0,
                                     rref_window_days=rref_window_days,
                                     rref_min_points=rref_min_points, rg=rg,
-                                    low_light_rg=rref_low_light_rg)
-    rref = rref_per_record(index, rref_windows)
+                                    low_light_rg=rref_low_light_rg, **cut)
+    rref = rref_per_record(index, rref_windows, **cut)
     return _respiration(rref, e0, nee_filled, temperature_filled, windows, e0_annual,
                         rref_windows, respiration_driver)
 
