@@ -42,6 +42,7 @@ from . import (
     clock,
     gapfill,
     method_failure,
+    night_uptake,
     preflight,
     schema,
     screening,
@@ -350,7 +351,7 @@ def _clock_and_preflight(frame, site, config, interval, geometry, is_night, scre
     findings = preflight.preflight(
         frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),
         screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval,
-        reader.get("columns"))
+        reader.get("columns"), sun_elevation=geometry["sun_elevation"].to_numpy())
     return verdict, findings
 
 
@@ -741,12 +742,14 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                                runs, temperature, config, night_fits.get(temperature), delay,
                                notes, report, year_keys), notes
 
-    outcomes, run_warnings = all_runs(screened, step)
-    # the release of CO2 stored on calm nights, seen in the mornings after them
-    # (storage_check); where it shows, those mornings are excluded and the runs redone
-    outcomes, run_warnings, screened, released, release_notes = _storage_release(
-        outcomes, run_warnings, screened, all_runs, frame["ustar"].to_numpy(dtype=float),
-        runs["central"], is_night, year_keys, interval, config.storage_release)
+    # a partitioning error names the uptake in the dark preflight found (night_uptake)
+    with night_uptake.named_in_failure(findings):
+        outcomes, run_warnings = all_runs(screened, step)
+        # the release of CO2 stored on calm nights, seen in the mornings after them
+        # (storage_check); where it shows, those mornings are excluded and the runs redone
+        outcomes, run_warnings, screened, released, release_notes = _storage_release(
+            outcomes, run_warnings, screened, all_runs, frame["ustar"].to_numpy(dtype=float),
+            runs["central"], is_night, year_keys, interval, config.storage_release)
     warnings.extend(run_warnings)
     warnings.extend(release_notes)
 

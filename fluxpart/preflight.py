@@ -83,6 +83,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from . import night_uptake
 from .column_faults import (
     censored_nee,
     delayed_tair,
@@ -827,7 +828,8 @@ def _days_text(span_days: float, interval_minutes: float) -> str:
 
 
 def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, rg_high,
-              latitude: float, config, interval_minutes: float, sources=None) -> list:
+              latitude: float, config, interval_minutes: float, sources=None, *,
+              sun_elevation=None) -> list:
     """Find every condition that would make a stage fail or fall back.
 
     Parameters
@@ -851,6 +853,9 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     sources : dict, optional
         Canonical name -> file column it was read from (the reader's record), to name
         the column in a message.
+    sun_elevation : array_like, optional
+        Sun elevation at each record's middle [degrees]; where given, months whose dark
+        records take up CO2 are named (:mod:`fluxpart.night_uptake`, not fatal).
 
     Returns
     -------
@@ -921,6 +926,11 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     else:
         findings += _e0(days, index, usable_night, temperature, config)
     findings += _rref(days, usable_night, config, without_ustar)
+    if sun_elevation is not None:
+        uptake = night_uptake.uptake_note(
+            night_uptake.dark_uptake_months(index, nee, sun_elevation),
+            (sources or {}).get("nee", "nee"))
+        findings += [Finding(night_uptake.STAGE, uptake, False)] if uptake else []
     rg = frame["rg"].to_numpy(dtype=float) if "rg" in frame.columns else np.full(len(index),
                                                                                  np.nan)
     potential = np.asarray(potential, dtype=float)
