@@ -90,6 +90,7 @@ __all__ = [
     "driver_weight",
     "e0_sensitivity",
     "e0_sigma",
+    "effective_records",
     "gap_runs",
     "gapfill_error_model",
     "interpolation_error",
@@ -1798,9 +1799,10 @@ def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
 
     Notes
     -----
-    Night residuals are autocorrelated, which makes n overstate the evidence:
-    the weight is then too decisive, but decides in the direction the data
-    favour. The annual error from the choice has second moment w·d² about the
+    Night residuals are autocorrelated, so n records overstate the evidence:
+    since 0.23.0 the BIC counts the effective number of independent records of the
+    favoured model's residuals (:func:`effective_records`), before that all n, which
+    made the weight too decisive. The annual error from the choice has second moment w·d² about the
     configured estimate, d being the difference the other driver makes; that is
     the part :func:`period_uncertainty` adds.
 
@@ -1821,7 +1823,9 @@ def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
     sad_other = float(np.sum(np.abs(nee[use] - other[use])))
     if sad_central <= 0 or sad_other <= 0:
         return 0.0
-    return bic_weight(laplace_delta_bic(sad_other, sad_central, int(use.sum())))
+    favoured = central if sad_central <= sad_other else other
+    return bic_weight(laplace_delta_bic(sad_other, sad_central,
+                                        effective_records(nee - favoured, use)))
 
 
 def combined_driver_weight(night_weight: float, day_statistic, critical: float) -> float:
@@ -1868,7 +1872,72 @@ def combined_driver_weight(night_weight: float, day_statistic, critical: float) 
     return night_weight
 
 
-def laplace_delta_bic(sad_model: float, sad_reference: float, records: int,
+def effective_records(residuals, use) -> float:
+    """Records worth of independent evidence in autocorrelated residuals.
+
+    Parameters
+    ----------
+    residuals : array_like
+        Residuals of a fit, one per record [µmol m-2 s-1]; only those where `use`
+        holds are read.
+    use : array_like of bool
+        The records compared, one per record; neighbours are consecutive records
+        (one time step apart) that are both used.
+
+    Returns
+    -------
+    float
+        ``n (1 − ρ) / (1 + ρ)``, n the records used and ρ the lag-1 autocorrelation
+        of their residuals over pairs of neighbours, taken as 0 when negative and at
+        most 0.95; n itself where fewer than 10 pairs of neighbours exist. At least 2
+        (never more than n).
+
+    Notes
+    -----
+    A log-likelihood summed over n records counts each as independent evidence.
+    Night residuals of a respiration fit are not independent: weather, soil moisture
+    and the error of the flux itself persist from one half-hour to the next (the
+    random error of neighbouring records correlates; Richardson et al. 2006), so a
+    BIC difference over n records overstates the evidence by about the variance
+    inflation (1 + ρ)/(1 − ρ) of a first-order autoregressive series, whose mean
+    carries the information of n (1 − ρ)/(1 + ρ) independent records (Wilks 2011,
+    section 5.2.4 (m); Zwiers & von Storch 1995 (m)). ρ is computed on residuals
+    clipped at 3 scaled median absolute deviations from their median, so that the
+    spikes left after screening (Laplace-like errors) do not set it. Used by
+    :func:`driver_weight` and :mod:`fluxpart.partition.temperature_choice` (since
+    0.23.0): a BIC difference is scaled to these records.
+
+    References
+    ----------
+    Wilks, D. S. (2011). Statistical Methods in the Atmospheric Sciences, 3rd ed.
+    Academic Press, section 5.2.4 (m).
+    Zwiers, F. W. & von Storch, H. (1995). Taking serial correlation into account in
+    tests of the mean. Journal of Climate 8, 336–351 (m).
+    Richardson, A. D. et al. (2006). Agricultural and Forest Meteorology 136, 1–18.
+    """
+    values = np.asarray(residuals, dtype=float)
+    used = np.asarray(use, dtype=bool) & np.isfinite(values)
+    n = int(used.sum())
+    pairs = used[:-1] & used[1:]
+    if pairs.sum() < _MIN_NEIGHBOUR_PAIRS:
+        return float(n)
+    centre = float(np.median(values[used]))
+    scale = 1.4826 * float(np.median(np.abs(values[used] - centre)))
+    anomaly = values - centre
+    if scale > 0:
+        anomaly = np.clip(anomaly, -3.0 * scale, 3.0 * scale)
+    first, second = anomaly[:-1][pairs], anomaly[1:][pairs]
+    if np.std(first) <= 0 or np.std(second) <= 0:
+        return float(n)
+    rho = min(max(float(np.corrcoef(first, second)[0, 1]), 0.0), _MAX_LAG_CORRELATION)
+    return float(min(max(n * (1.0 - rho) / (1.0 + rho), 2.0), n))
+
+
+_MIN_NEIGHBOUR_PAIRS = 10      # fewest neighbour pairs for a lag-1 autocorrelation
+_MAX_LAG_CORRELATION = 0.95    # beyond it n_eff rests on the autocorrelation's last digits
+
+
+def laplace_delta_bic(sad_model: float, sad_reference: float, records: float,
                       extra_parameters: int = 0) -> float:
     """BIC of a model minus that of a reference, both fitted to the same records,
     under Laplace (double-exponential) errors.
@@ -1878,8 +1947,9 @@ def laplace_delta_bic(sad_model: float, sad_reference: float, records: int,
     sad_model, sad_reference : float
         Sums of absolute residuals of the two models over the same `records`
         [µmol m-2 s-1].
-    records : int
-        Number of records n.
+    records : float
+        Number of records n, or the effective number of independent records where
+        the residuals are autocorrelated (:func:`effective_records`).
     extra_parameters : int, optional
         Parameters the model has beyond the reference's; default 0.
 

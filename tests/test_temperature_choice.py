@@ -86,7 +86,9 @@ def test_criterion_is_the_bic_of_the_lloyd_taylor_fit():
     """Noise-free night NEE that follows Lloyd & Taylor (1994) eq. 11 exactly on soil
     temperature is fitted almost perfectly with soil temperature; ΔBIC and the weight
     are Schwarz's (1978) criterion under Laplace errors computed from the reported sums of
-    absolute residuals: 2n ln(SAD_tsoil / SAD_tair)."""
+    absolute residuals: 2n ln(SAD_tsoil / SAD_tair), n the effective number of
+    independent records of the favoured fit's residuals (AR(1) n (1 - ρ)/(1 + ρ), Wilks
+    2011 (m); since 0.23.0)."""
     rng, index, tair, tsoil, is_night = _weather(seed=2)
     nee = _night_nee(rng, index, tsoil, is_night, noise=0.0)
     choice = choose_respiration_temperature(index, nee, tair, tsoil, is_night)
@@ -95,7 +97,9 @@ def test_criterion_is_the_bic_of_the_lloyd_taylor_fit():
     # eq. 11 reproduced: residuals within 3 % of the night flux's own spread
     assert choice.sad["tsoil"] < 0.03 * night_spread * choice.records
     assert choice.sad["tair"] > 10 * choice.sad["tsoil"]
-    expected = 2 * choice.records * math.log(choice.sad["tsoil"] / choice.sad["tair"])
+    assert 2 <= choice.effective_records <= choice.records
+    assert choice.to_dict()["records_effective"] == choice.effective_records
+    expected = 2 * choice.effective_records * math.log(choice.sad["tsoil"] / choice.sad["tair"])
     assert choice.delta_bic == pytest.approx(expected, rel=1e-9)
     assert choice.tsoil_weight == pytest.approx(1.0 / (1.0 + math.exp(expected / 2)), abs=1e-12)
 

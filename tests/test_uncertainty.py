@@ -1212,3 +1212,33 @@ def test_window_parts_stay_within_the_pieces_between_events():
         for got, plain in zip(interpolation_error(index, windows, breaks=none),
                               interpolation_error(index, windows), strict=True):
             np.testing.assert_array_equal(got, plain)
+
+
+def test_effective_records_follows_the_ar1_variance_inflation():
+    """Known truth: an AR(1) series of lag-1 correlation 0.6 carries the information of
+    n (1 - 0.6)/(1 + 0.6) = n / 4 independent records (Wilks 2011, section 5.2.4 (m));
+    the lag-1 autocorrelation is checked against statsmodels' ``acf``, a general-purpose
+    reference; white noise keeps all n; a negative correlation counts as none."""
+    from statsmodels.tsa.stattools import acf
+
+    from fluxpart.uncertainty import effective_records
+
+    rng = np.random.default_rng(7)
+    n = 20000
+    shocks = rng.standard_normal(n)
+    series = np.empty(n)
+    series[0] = shocks[0]
+    for i in range(1, n):
+        series[i] = 0.6 * series[i - 1] + np.sqrt(1 - 0.36) * shocks[i]
+    use = np.ones(n, dtype=bool)
+    rho = acf(series, nlags=1, fft=True)[1]
+    assert effective_records(series, use) == pytest.approx(n * (1 - rho) / (1 + rho), rel=0.02)
+    assert effective_records(series, use) == pytest.approx(n / 4, rel=0.08)
+    assert effective_records(shocks, use) == pytest.approx(n, rel=0.03)
+    alternating = np.where(np.arange(n) % 2 == 0, 1.0, -1.0) + 0.1 * shocks
+    assert effective_records(alternating, use) == n
+    # only neighbours that are both used form pairs: every other record used, no pairs
+    sparse = np.arange(n) % 2 == 0
+    assert effective_records(series, sparse) == sparse.sum()
+    # never below 2 nor above the records used
+    assert effective_records(np.cumsum(shocks), use) >= 2
