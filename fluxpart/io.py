@@ -31,12 +31,14 @@ import bz2
 import codecs
 import csv
 import difflib
+import errno
 import glob
 import gzip
 import hashlib
 import io as _io
 import lzma
 import math
+import os
 import re
 import unicodedata
 from dataclasses import dataclass, field, fields
@@ -1542,10 +1544,52 @@ def _require_input_file(path: Path) -> None:
         raise InputFileError(f"[input] path: input file {str(path)[:80]!r}... cannot be "
                              f"looked up: {error.strerror or error}") from None
     if not exists:
+        broken = broken_link(path)
+        if broken:
+            raise InputFileError(f"[input] path: input file {str(path)!r} {broken}")
         hint = other_system_path_hint(path) or _case_hint(path)
         raise InputFileError(f"[input] path: input file {str(path)!r} does not exist{hint}")
     if not path.is_file():
         raise InputFileError(f"[input] path: {str(path)!r} is not a file")
+
+
+def broken_link(path: Path) -> str:
+    """Why `path`, a symbolic link, leads to no file; empty where it is no link.
+
+    A link whose target was moved or deleted (a dangling link), or one that leads back
+    to itself (``ELOOP``), stands in its folder under the very name looked for: calling
+    the file missing, and then naming the link as a file "differing only in case",
+    sent the user looking for a file that is there.
+
+    Parameters
+    ----------
+    path : pathlib.Path
+        The path that does not lead to an existing file.
+
+    Returns
+    -------
+    str
+        A phrase to follow the path's name, or ``""``.
+
+    References
+    ----------
+    Linux man-pages, symlink(7) and path_resolution(7): a dangling link and the
+    ``ELOOP`` of a loop of links (m).
+    """
+    try:
+        if not path.is_symlink():
+            return ""
+        target = os.readlink(path)
+    except OSError:
+        return ""
+    try:
+        path.stat()
+    except OSError as error:
+        if error.errno == errno.ELOOP:
+            return (f"is a symbolic link (to {target!r}) that leads back to itself; fix or "
+                    "remove the link, or give the file itself")
+    return (f"is a symbolic link to {target!r}, which does not exist (moved or deleted?); "
+            "point the link at the file again, or give the file itself")
 
 
 def _case_hint(path: Path) -> str:
@@ -1556,7 +1600,7 @@ def _case_hint(path: Path) -> str:
     """
     try:
         same = sorted(p.name for p in path.parent.iterdir()
-                      if p.name.lower() == path.name.lower())
+                      if p.name.lower() == path.name.lower() and p.name != path.name)
     except OSError:
         return ""
     return (f"; the folder has {same[0]!r}, which differs only in upper and lower case "
