@@ -122,7 +122,7 @@ def located_changes(site_config: Path, input_path: Path, stored: pd.DataFrame,
                      f"{_stamp(removed[0])})")
     if not parts:
         return ("read as the run read it, every value equals the input the result holds: "
-                "the change lies outside the columns read (another column, a comment, the "
-                "layout or the line endings)")
+                "the change lies outside the values read (another column, a comment, spaces "
+                "or the layout)")
     return ("read as the run read it, against the input values the result holds: "
             + ", ".join(parts))

@@ -770,9 +770,13 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
                 raise _refusal(directory, _MOUNT_POINT.format(
                     inside=str(directory / "result"))) from None
             where = f" ({error.filename})" if error.filename else ""
+            # EFBIG: a table beyond the process's file-size limit (ulimit -f, a batch
+            # job's or a container's), which no free space would help (setrlimit(2) (m))
+            fix = ("; raise the file-size limit (ulimit -f) or run where there is none"
+                   if error.errno == errno.EFBIG else "")
             raise OutputError(f"writing the result folder {str(directory)!r} failed: "
                               f"{error.strerror or error}{where}; the earlier result, if any, "
-                              "is unchanged") from None
+                              f"is unchanged{fix}") from None
     return directory
 
 

@@ -1420,7 +1420,9 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
         try:
             source, result, input_differences = _recompute(
                 directory, manifest, input_path, config_path, scratch, notes,
-                stored_tables.get("timeseries"))
+                # the input values a result holds locate an edited input only where the
+                # folder is the one its manifest describes (seal and every SHA-256)
+                None if differences else stored_tables.get("timeseries"))
         except FluxpartError as error:
             if not differences:
                 raise

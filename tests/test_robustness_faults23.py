@@ -220,6 +220,23 @@ def test_verify_names_records_added_and_removed_from_an_input(bundle, tmp_path):
     assert "48 record(s) added (first starting 2021-01-31 00:00)" in text
 
 
+def test_an_edited_input_is_not_located_in_a_folder_that_fails_its_manifest(bundle,
+                                                                            tmp_path):
+    """The stored time series locates an edit only where the folder is the one its
+    manifest describes: with a table changed too (here one byte appended to
+    daily.parquet, so its SHA-256 is not the recorded one) the folder's own values are
+    no evidence of what the run read, and no record is named."""
+    root = _copy(bundle, tmp_path)
+    _edit_value(root / "tower.csv", 499, 1, 1.5)
+    with open(root / "out" / "daily.parquet", "ab") as handle:
+        handle.write(b"\0")
+    report = verify(root / "out")
+    texts = [d.describe() for d in report.differences]
+    assert any("it is not the input file the result was computed from, so nothing"
+               in text for text in texts), texts
+    assert not any("read as the run read it" in text for text in texts)
+
+
 def test_the_located_changes_of_the_recorded_input_are_none(bundle):
     """The comparison itself must not invent differences: the unedited input, read with
     its recorded site config, equals the input values its stored time series holds
@@ -317,3 +334,43 @@ def test_an_unwritable_matplotlib_folder_adds_no_lines(tmp_path):
     assert done.returncode == 0, done.stderr
     assert done.stderr == ""
     assert not done.stdout.strip().startswith(str(blocker))    # a temporary folder used
+
+
+def test_a_folder_named_with_a_leading_dash_is_named(bundle, tmp_path, capsys, monkeypatch):
+    """A result folder named "-out" (a script's or a typo of --out) is read by argparse
+    as an option: verify said only "the following arguments are required: directory".
+    The one error line now says the argument is also a path and how to give it
+    (./-out; POSIX Utility Syntax Guideline 10 (m)); ./-out verifies."""
+    shutil.copytree(bundle / "out", tmp_path / "-out")
+    shutil.copy(bundle / "tower.csv", tmp_path / "tower.csv")
+    shutil.copy(bundle / "site.toml", tmp_path / "site.toml")
+    monkeypatch.chdir(tmp_path)
+    assert main(["verify", "-out"]) == 2
+    line = _one_error_line(capsys)
+    assert "'-out' was read as an option" in line and "'./-out'" in line
+    assert main(["verify", "--exact", "-out"]) == 2                   # also when extra
+    assert "'./-out'" in _one_error_line(capsys)
+    assert main(["verify", "--no-such-option"]) == 2                  # no such path: as before
+    assert "read as an option" not in _one_error_line(capsys)
+    assert main(["verify", "./-out"]) == 0
+
+
+def test_a_file_size_limit_under_run_names_the_limit(bundle, tmp_path):
+    """Under a file-size limit (ulimit -f; RLIMIT_FSIZE, setrlimit(2) (m)) a table's write
+    fails EFBIG (Python ignores SIGXFSZ): run said "File too large; the earlier result,
+    if any, is unchanged", with no fix; the line now names the limit. Nothing is left."""
+    import resource
+
+    root = _copy(bundle, tmp_path)
+
+    def limited():
+        resource.setrlimit(resource.RLIMIT_FSIZE, (100 * 1024, 100 * 1024))
+
+    env = dict(os.environ, PYTHONPATH=os.pathsep.join(sys.path), OMP_NUM_THREADS="1")
+    done = subprocess.run([sys.executable, "-m", "fluxpart", "run", str(root / "site.toml"),
+                           "--out", str(root / "new")], capture_output=True, text=True,
+                          env=env, preexec_fn=limited, timeout=600)
+    assert done.returncode == 2
+    err = done.stderr.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: ") and "ulimit -f" in err[0], err
+    assert not [p.name for p in root.iterdir() if "new" in p.name]
