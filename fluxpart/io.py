@@ -1592,6 +1592,34 @@ def broken_link(path: Path) -> str:
             "point the link at the file again, or give the file itself")
 
 
+def _too_large(path: Path) -> str:
+    """The message for an input file larger than the memory the process may use.
+
+    The reader holds the whole file; a file of gigabytes given as the input (a disk image,
+    a logger's preallocated card file of zero bytes, a raw high-frequency file) ended in
+    "ran out of memory ... give the process more memory", which named neither the file
+    nor its size, and more memory would not make such a file a half-hourly table.
+
+    References
+    ----------
+    Linux man-pages, truncate(1) and lseek(2): a sparse file reads as zero bytes where
+    nothing was written (m).
+    """
+    try:
+        size = path.stat().st_size
+        with open(path, "rb") as handle:
+            head = handle.read(1 << 16)
+    except OSError:
+        size, head = None, b""
+    zeros = (" and begins with zero bytes only (NUL: a file created at its full size "
+             "but never written, a preallocated logger card file?)"
+             if head and not head.strip(b"\x00") else "")
+    shown = f"{size / 1e9:.1f} GB" if size is not None else "too large"
+    return (f"input file {str(path)!r} is {shown}{zeros}, more than this process can hold "
+            "in memory (half-hourly records of a tower over decades take megabytes): check "
+            "that [input] path names the tower's table, or give the process more memory")
+
+
 def _case_hint(path: Path) -> str:
     """A hint naming a file of the folder whose name differs from `path`'s only in case.
 
@@ -1649,6 +1677,8 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
         data = path.read_bytes()
     except OSError as error:
         raise InputFileError(f"input file {str(path)!r} cannot be read: {error}") from None
+    except MemoryError:
+        raise InputFileError(_too_large(path)) from None
     data = _decompressed(data, path)
     refuse_binary(data, path)
     # a byte-order mark names the encoding, also over [input] encoding: a file saved with

@@ -345,13 +345,17 @@ def test_a_folder_named_with_a_leading_dash_is_named(bundle, tmp_path, capsys, m
     shutil.copy(bundle / "tower.csv", tmp_path / "tower.csv")
     shutil.copy(bundle / "site.toml", tmp_path / "site.toml")
     monkeypatch.chdir(tmp_path)
-    assert main(["verify", "-out"]) == 2
-    line = _one_error_line(capsys)
+
+    def usage_error(argv) -> str:
+        with pytest.raises(SystemExit) as stop:
+            main(argv)
+        assert stop.value.code == 2
+        return _one_error_line(capsys)
+
+    line = usage_error(["verify", "-out"])
     assert "'-out' was read as an option" in line and "'./-out'" in line
-    assert main(["verify", "--exact", "-out"]) == 2                   # also when extra
-    assert "'./-out'" in _one_error_line(capsys)
-    assert main(["verify", "--no-such-option"]) == 2                  # no such path: as before
-    assert "read as an option" not in _one_error_line(capsys)
+    assert "'./-out'" in usage_error(["verify", "./-out", "-out"])   # also as a leftover
+    assert "read as an option" not in usage_error(["verify", "--no-such-option"])
     assert main(["verify", "./-out"]) == 0
 
 
@@ -374,3 +378,30 @@ def test_a_file_size_limit_under_run_names_the_limit(bundle, tmp_path):
     err = done.stderr.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("error: ") and "ulimit -f" in err[0], err
     assert not [p.name for p in root.iterdir() if "new" in p.name]
+
+
+def test_an_input_larger_than_memory_is_named_with_its_size(bundle, tmp_path):
+    """A 6 GiB input of zero bytes (a sparse file: truncate(1), nothing written reads as
+    NUL, lseek(2) (m); a preallocated card file, a disk image) under a 3 GB memory limit
+    (RLIMIT_AS, setrlimit(2) (m)): `check` said "ran out of memory ... give the process
+    more memory", naming neither the file nor its size. The one error line now names
+    both and the zero bytes."""
+    import resource
+
+    root = _copy(bundle, tmp_path)
+    with open(root / "big.csv", "wb") as handle:
+        handle.truncate(6 * 1024 ** 3)
+    config = root / "site.toml"
+    config.write_text(config.read_text().replace('path = "tower.csv"', 'path = "big.csv"'))
+
+    def limited():
+        resource.setrlimit(resource.RLIMIT_AS, (3 * 10 ** 9, 3 * 10 ** 9))
+
+    env = dict(os.environ, PYTHONPATH=os.pathsep.join(sys.path), OMP_NUM_THREADS="1")
+    done = subprocess.run([sys.executable, "-m", "fluxpart", "check", str(config)],
+                          capture_output=True, text=True, env=env, preexec_fn=limited,
+                          timeout=600)
+    assert done.returncode == 2
+    err = done.stderr.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: input file "), err
+    assert "big.csv' is 6.4 GB and begins with zero bytes only" in err[0]
