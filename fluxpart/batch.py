@@ -125,6 +125,11 @@ _DEFAULT_WORKERS = 2
 DEFAULT_SITE_TIME_LIMIT_MINUTES = 240.0
 #: How often the client looks which sites are running [s] (the limit's resolution).
 _POLL_SECONDS = 1.0
+#: How long a cluster may have no worker before the batch says it is waiting for one [s]:
+#: well above the few seconds a local worker's nanny takes to restart a killed worker
+#: (common practice); a cluster that scales from zero (adaptive, a job queue) may take
+#: longer, so this is a note, not a failure.
+_NO_WORKER_NOTE_SECONDS = 60.0
 _CONNECT_TIMEOUT_SECONDS = 10
 _RESERVED_KEYS = {*NETWORK_DATASETS.values(), FAILURES_FILE, NETWORK_SEAL}
 _SITE_COLUMNS = {
@@ -356,7 +361,11 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
         if not isinstance(pattern, str) or not pattern.strip():
             raise ConfigError(f"{where}: expected a path or glob pattern (a non-empty string)")
         full = base / pattern
-        if glob.has_magic(pattern):
+        # a site folder named with brackets ("tower[2021]", "plot[3]", an export of a
+        # spreadsheet's sheet) is a legal path: the glob read "[2021]" as one character of
+        # 2, 0 or 1 and refused an existing file as matching nothing. A path that names an
+        # existing file is that file (POSIX glob(7): brackets are pattern characters (m))
+        if glob.has_magic(pattern) and not full.is_file():
             # the network file is a .toml file too: a glob beside it (*.toml) is not
             # meant to list it as a site
             matches = sorted(Path(p) for p in glob.glob(str(full), recursive=True)
@@ -677,7 +686,7 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
         seal = json.loads(path.read_text(encoding="utf-8"))
     except OSError as error:
         raise unreadable(path, error) from None
-    except ValueError:
+    except (ValueError, RecursionError):     # cut short, edited, nested too deep
         seal = None
     if not isinstance(seal, dict):
         # it said "network.json says so: a batch was stopped", of a file cut short or edited
@@ -1338,6 +1347,51 @@ def _running_now(client) -> set:
     return {key for keys in answers.values() if isinstance(keys, list) for key in keys}
 
 
+def _worker_count(client) -> int | None:
+    """How many workers the cluster has now; None where the scheduler cannot be asked."""
+    try:
+        return len(client.nthreads())
+    except Exception:  # a lost scheduler: the tasks' own failure tells
+        return None
+
+
+def _no_worker_note(since: float | None, now: float, address: str) -> str | None:
+    """The note for a cluster without any worker since `since` [s, monotonic], or None.
+
+    With an existing cluster (``--scheduler``) whose workers all died (a node rebooted,
+    the job queue ended their jobs, ``kill -9``), Dask's scheduler keeps the sites
+    queued until a worker joins, and the batch waited without a word and without end
+    (the site time limit counts only running sites).
+
+    Parameters
+    ----------
+    since : float or None
+        When the cluster was first seen without a worker (``time.monotonic``), or None
+        while it has one.
+    now : float
+        The time now, on the same clock [s].
+    address : str
+        The scheduler's address, named in the note.
+
+    Returns
+    -------
+    str or None
+        The note once the cluster has been without a worker for
+        :data:`_NO_WORKER_NOTE_SECONDS`, else None.
+
+    References
+    ----------
+    Dask.distributed documentation, "Scheduling Policies" and "Adaptive deployments":
+    tasks wait on the scheduler until a worker can run them (m).
+    """
+    if since is None or now - since < _NO_WORKER_NOTE_SECONDS:
+        return None
+    return (f"note: the Dask cluster at {address} has had no worker for "
+            f"{now - since:.0f} s (all lost, or not yet started); the sites still to do "
+            "wait on its scheduler until a worker joins: start workers on it, or stop the "
+            "batch (Ctrl-C) and run it again later (finished sites are kept and skipped)")
+
+
 def _run_tasks(client, sites, out: Path, force: bool, progress,
                time_limit: float = DEFAULT_SITE_TIME_LIMIT_MINUTES * 60.0
                ) -> list[SiteOutcome]:
@@ -1356,6 +1410,7 @@ def _run_tasks(client, sites, out: Path, force: bool, progress,
         futures[future] = (position, key, config)
     outcomes = [None] * len(sites)
     pending, started, finished = set(futures), {}, 0
+    workerless, noted = None, False
 
     def end(future, outcome):
         nonlocal finished
@@ -1382,6 +1437,14 @@ def _run_tasks(client, sites, out: Path, force: bool, progress,
         if not pending:
             break
         now = time.monotonic()
+        if not noted:
+            count = _worker_count(client)
+            workerless = (workerless or now) if count == 0 else None
+            address = getattr(getattr(client, "scheduler", None), "address", "?")
+            note = _no_worker_note(workerless, now, str(address))
+            if note:
+                print(note, file=sys.stderr, flush=True)
+                noted = True
         running = _running_now(client)
         for future in sorted(pending, key=lambda f: futures[f][0]):
             if future.key in running:

@@ -402,8 +402,33 @@ class _Parser(argparse.ArgumentParser):
     (``add_subparsers`` makes them with the parent's class).
     """
 
+    #: The arguments being parsed (set by :func:`_parse`), for :func:`_dash_named_path`.
+    given: tuple = ()
+
     def error(self, message):
-        self.exit(2, f"error: {self.prog}: {message} (see {self.prog} --help)\n")
+        self.exit(2, f"error: {self.prog}: {message}{_dash_named_path(self.given)} (see "
+                     f"{self.prog} --help)\n")
+
+
+def _dash_named_path(arguments) -> str:
+    """A hint where an argument that argparse took for an option names an existing path.
+
+    A result folder or file whose name begins with ``-`` (``-out``, ``-2021``; made by a
+    script or a typo of ``--out``) is read as an option: ``fluxpart verify -out`` said
+    only that the folder argument was missing. The shell gives no way around it; the
+    usual one is a path that does not begin with the dash (``./-out``) or ``--`` before
+    it (POSIX Utility Syntax Guideline 10 (m)).
+    """
+    for argument in arguments:
+        if isinstance(argument, str) and argument.startswith("-") and argument not in ("-", "--") and "=" not in argument:
+            try:
+                exists = os.path.lexists(argument)
+            except (OSError, ValueError):
+                exists = False
+            if exists:
+                return (f"; {argument!r} was read as an option, but it is also a path here: "
+                        f"give it as {'./' + argument!r}")
+    return ""
 
 
 def _path(text: str) -> str:
@@ -649,6 +674,7 @@ def _parse(argv):
     single folder or file given without its option is named with that option.
     """
     parser = _parser()
+    _Parser.given = tuple(sys.argv[1:] if argv is None else argv)
     args, extra = parser.parse_known_args(argv)
     if extra:
         command = getattr(args, "command", None)
@@ -657,6 +683,7 @@ def _parse(argv):
         hint = ""
         if option and len(extra) == 1 and not extra[0].startswith("-"):
             hint = f"; to write to {extra[0]!r}, give it as {option} {extra[0]}"
+        hint = hint or _dash_named_path(extra)
         parser.exit(2, f"error: {prog}: unrecognized arguments: {' '.join(extra)}{hint} "
                        f"(see {prog} --help)\n")
     return args

@@ -162,6 +162,34 @@ class Written:
 
 
 def _matplotlib(*, setter_docs=True):
+    """Import matplotlib's object-oriented parts (:func:`_import_matplotlib`) quietly.
+
+    matplotlib keeps its font cache in a folder under the home folder
+    (``~/.cache/matplotlib``, or ``MPLCONFIGDIR``); where that cannot be written (a
+    container or a service account with a read-only or missing home) it uses a
+    temporary folder instead and says so in two WARNING lines on standard error
+    ("mkdir -p failed ...", "Matplotlib created a temporary cache directory ..."),
+    beside the command's own lines, on every ``report``. The figures are the same
+    either way, so its log is held to errors while it is imported.
+
+    References
+    ----------
+    matplotlib documentation, "Location of the configuration and cache folders"
+    (``MPLCONFIGDIR``; the temporary folder where it is not writable) (m).
+    """
+    import logging
+
+    log = logging.getLogger("matplotlib")
+    level = log.level
+    if level < logging.ERROR:
+        log.setLevel(logging.ERROR)
+    try:
+        return _import_matplotlib(setter_docs=setter_docs)
+    finally:
+        log.setLevel(level)
+
+
+def _import_matplotlib(*, setter_docs=True):
     """Import matplotlib's object-oriented parts, or explain how to install them.
 
     With ``setter_docs=False`` and matplotlib not yet imported, matplotlib is imported

@@ -31,12 +31,14 @@ import bz2
 import codecs
 import csv
 import difflib
+import errno
 import glob
 import gzip
 import hashlib
 import io as _io
 import lzma
 import math
+import os
 import re
 import unicodedata
 from dataclasses import dataclass, field, fields
@@ -1542,10 +1544,80 @@ def _require_input_file(path: Path) -> None:
         raise InputFileError(f"[input] path: input file {str(path)[:80]!r}... cannot be "
                              f"looked up: {error.strerror or error}") from None
     if not exists:
+        broken = broken_link(path)
+        if broken:
+            raise InputFileError(f"[input] path: input file {str(path)!r} {broken}")
         hint = other_system_path_hint(path) or _case_hint(path)
         raise InputFileError(f"[input] path: input file {str(path)!r} does not exist{hint}")
     if not path.is_file():
         raise InputFileError(f"[input] path: {str(path)!r} is not a file")
+
+
+def broken_link(path: Path) -> str:
+    """Why `path`, a symbolic link, leads to no file; empty where it is no link.
+
+    A link whose target was moved or deleted (a dangling link), or one that leads back
+    to itself (``ELOOP``), stands in its folder under the very name looked for: calling
+    the file missing, and then naming the link as a file "differing only in case",
+    sent the user looking for a file that is there.
+
+    Parameters
+    ----------
+    path : pathlib.Path
+        The path that does not lead to an existing file.
+
+    Returns
+    -------
+    str
+        A phrase to follow the path's name, or ``""``.
+
+    References
+    ----------
+    Linux man-pages, symlink(7) and path_resolution(7): a dangling link and the
+    ``ELOOP`` of a loop of links (m).
+    """
+    try:
+        if not path.is_symlink():
+            return ""
+        target = os.readlink(path)
+    except OSError:
+        return ""
+    try:
+        path.stat()
+    except OSError as error:
+        if error.errno == errno.ELOOP:
+            return (f"is a symbolic link (to {target!r}) that leads back to itself; fix or "
+                    "remove the link, or give the file itself")
+    return (f"is a symbolic link to {target!r}, which does not exist (moved or deleted?); "
+            "point the link at the file again, or give the file itself")
+
+
+def _too_large(path: Path) -> str:
+    """The message for an input file larger than the memory the process may use.
+
+    The reader holds the whole file; a file of gigabytes given as the input (a disk image,
+    a logger's preallocated card file of zero bytes, a raw high-frequency file) ended in
+    "ran out of memory ... give the process more memory", which named neither the file
+    nor its size, and more memory would not make such a file a half-hourly table.
+
+    References
+    ----------
+    Linux man-pages, truncate(1) and lseek(2): a sparse file reads as zero bytes where
+    nothing was written (m).
+    """
+    try:
+        size = path.stat().st_size
+        with open(path, "rb") as handle:
+            head = handle.read(1 << 16)
+    except OSError:
+        size, head = None, b""
+    zeros = (" and begins with zero bytes only (NUL: a file created at its full size "
+             "but never written, a preallocated logger card file?)"
+             if head and not head.strip(b"\x00") else "")
+    shown = f"{size / 1e9:.1f} GB" if size is not None else "too large"
+    return (f"input file {str(path)!r} is {shown}{zeros}, more than this process can hold "
+            "in memory (half-hourly records of a tower over decades take megabytes): check "
+            "that [input] path names the tower's table, or give the process more memory")
 
 
 def _case_hint(path: Path) -> str:
@@ -1556,7 +1628,7 @@ def _case_hint(path: Path) -> str:
     """
     try:
         same = sorted(p.name for p in path.parent.iterdir()
-                      if p.name.lower() == path.name.lower())
+                      if p.name.lower() == path.name.lower() and p.name != path.name)
     except OSError:
         return ""
     return (f"; the folder has {same[0]!r}, which differs only in upper and lower case "
@@ -1605,6 +1677,8 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
         data = path.read_bytes()
     except OSError as error:
         raise InputFileError(f"input file {str(path)!r} cannot be read: {error}") from None
+    except MemoryError:
+        raise InputFileError(_too_large(path)) from None
     data = _decompressed(data, path)
     refuse_binary(data, path)
     # a byte-order mark names the encoding, also over [input] encoding: a file saved with

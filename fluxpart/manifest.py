@@ -387,6 +387,64 @@ def _nearby_result(directory: Path) -> str:
     return ""
 
 
+def _unreadable_why(error: Exception) -> str:
+    """What made valid-looking JSON unreadable: nesting too deep or a number too long.
+
+    References
+    ----------
+    Python documentation, ``sys.set_int_max_str_digits`` (the 4300-digit default limit
+    on converting text to int, CVE-2020-10735) and ``json`` (the decoder recurses per
+    level of nesting) (m).
+    """
+    if isinstance(error, RecursionError):
+        return "arrays or objects nested too deep to read"
+    return f"a value cannot be read: {str(error).split(';')[0]}"
+
+
+#: Leading bytes of the archives a result folder is sent or kept in: zip (PKWARE
+#: APPNOTE 4.3.7, local file header "PK\x03\x04"; "PK\x05\x06" of an empty one), 7z,
+#: and the compressors a tar archive is put through (gzip RFC 1952, bzip2, xz, zstd
+#: RFC 8878) (m).
+_ARCHIVE_MAGIC = ((b"PK\x03\x04", "zip"), (b"PK\x05\x06", "zip"),
+                  (b"7z\xbc\xaf\x27\x1c", "7z"), (b"\x1f\x8b", "gzip-compressed (.tar.gz?)"),
+                  (b"BZh", "bzip2-compressed (.tar.bz2?)"),
+                  (b"\xfd7zXZ\x00", "xz-compressed (.tar.xz?)"),
+                  (b"\x28\xb5\x2f\xfd", "zstd-compressed (.tar.zst?)"))
+
+
+def archive_kind(path: Path) -> str:
+    """The kind of archive the file `path` is, told from its first bytes, or ``""``.
+
+    A result folder is commonly handed on packed (zip, tar); given packed to ``verify``,
+    ``report`` or ``export`` it was called "a file, not a result folder", which did not
+    say what to do with it.
+
+    Parameters
+    ----------
+    path : pathlib.Path
+        A file given where a result folder belongs.
+
+    Returns
+    -------
+    str
+        ``"zip"``, ``"tar"``, ``"7z"``, a compressed kind, or ``""`` (not an archive or
+        not readable).
+
+    References
+    ----------
+    PKWARE (2020). APPNOTE.TXT - .ZIP File Format Specification, 6.3.9, section 4.3.7;
+    IEEE Std 1003.1 (POSIX), pax / ustar format: "ustar" at byte offset 257 (m).
+    """
+    try:
+        with open(path, "rb") as handle:
+            head = handle.read(512)
+    except OSError:
+        return ""
+    if head[257:262] == b"ustar":
+        return "tar"
+    return next((kind for magic, kind in _ARCHIVE_MAGIC if head.startswith(magic)), "")
+
+
 class _RepeatedKey(ValueError):
     """A key given twice in one JSON object of a manifest."""
 
@@ -416,6 +474,11 @@ def _read_manifest(directory: Path) -> dict:
         raise InputFileError(f"the result folder {str(directory)!r} does not exist: give the "
                              "folder that fluxpart run or batch wrote (its --out)")
     if not Path(directory).is_dir():
+        packed = archive_kind(Path(directory))
+        if packed:
+            raise InputFileError(f"{str(directory)!r} is a {packed} archive, not a result "
+                                 "folder: unpack it and give the result folder inside (the "
+                                 "one holding manifest.json)")
         raise InputFileError(f"{str(directory)!r} is a file, not a result folder: give the "
                              "folder that fluxpart run or batch wrote (its --out)")
     if not path.is_file():
@@ -457,6 +520,13 @@ def _read_manifest(directory: Path) -> dict:
         raise InputFileError(f"{str(path)!r} has the key {repeated.args[0]!r} twice in one "
                              "object: fluxpart writes each key once, so the file was edited "
                              "after it was written; use the manifest as written") from None
+    except (RecursionError, ValueError) as error:
+        # valid JSON no fluxpart writes: arrays or objects nested thousands deep (Python's
+        # JSON reader recurses per level) or an integer of more than 4300 digits (Python
+        # 3.11's limit on converting text to int): a RecursionError or ValueError traceback
+        raise InputFileError(f"{str(path)!r} is not a manifest fluxpart writes ("
+                             f"{_unreadable_why(error)}): it was edited or replaced after "
+                             "it was written; use the manifest as written") from None
     if not isinstance(manifest, dict):
         raise InputFileError(f"{str(path)!r} is not a fluxpart manifest (not a JSON object)")
     return manifest

@@ -423,7 +423,7 @@ def recorded_site_name(directory) -> str | None:
     """
     try:
         manifest = json.loads(manifest_text((Path(directory) / MANIFEST_FILE).read_bytes()))
-    except (OSError, UnicodeDecodeError, ValueError):
+    except (OSError, UnicodeDecodeError, ValueError, RecursionError):
         return None
     site = manifest.get("site") if isinstance(manifest, dict) else None
     name = site.get("name") if isinstance(site, dict) else None
@@ -569,7 +569,8 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
             tables = manifest.get("tables") if isinstance(manifest, dict) else None
             listed = {entry.get("file") for entry in tables.values() if isinstance(entry, dict)}
             listed |= {MANIFEST_FILE, RUN_LOG, REPORT_FOLDER}
-        except (OSError, UnicodeDecodeError, ValueError, AttributeError):
+        except (OSError, UnicodeDecodeError, ValueError, RecursionError,
+                AttributeError):
             listed = {name for name in names if _run_writes(name)}
     else:
         listed = {marker} | {name for name in names if name.endswith(".png")}
@@ -761,6 +762,7 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
             with swapped_in(staging, directory):
                 _write_tables(staging, directory, tables, site=site, config=config, seed=seed,
                               provenance=provenance, warnings=warnings)
+            _name_unremoved(staging, notify)
         except OSError as error:
             if error.errno == errno.EBUSY and directory.is_dir():
                 # a bind mount of a folder of the same file system: os.path.ismount does not
@@ -768,10 +770,53 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
                 raise _refusal(directory, _MOUNT_POINT.format(
                     inside=str(directory / "result"))) from None
             where = f" ({error.filename})" if error.filename else ""
+            # EFBIG: a table beyond the process's file-size limit (ulimit -f, a batch
+            # job's or a container's), which no free space would help (setrlimit(2) (m))
+            fix = ("; raise the file-size limit (ulimit -f) or run where there is none"
+                   if error.errno == errno.EFBIG else "")
             raise OutputError(f"writing the result folder {str(directory)!r} failed: "
                               f"{error.strerror or error}{where}; the earlier result, if any, "
-                              "is unchanged") from None
+                              f"is unchanged{fix}") from None
     return directory
+
+
+def _name_unremoved(old: Path, notify=None) -> None:
+    """Name an earlier result the swap left beside the new one because it cannot be removed.
+
+    After the swap the staging folder holds the earlier result, removed without a word
+    (``shutil.rmtree(..., ignore_errors=True)``). A file in it that cannot be deleted (the
+    immutable or append-only attribute, ``chattr +i`` / ``+a``, a backup tool's or an
+    administrator's protection; a file of another user in a folder with the sticky bit)
+    left the old result in a hidden ``.NAME.staging-*`` folder: the run ended with exit 0
+    and nothing said, and every later run and verify took it for a run stopped part-way.
+    The new result is complete and stays; this says where the old one is and why.
+
+    Parameters
+    ----------
+    old : pathlib.Path
+        The staging folder after the swap (the earlier result's new name).
+    notify : callable, optional
+        Called with the note; by default it is printed to standard error.
+
+    References
+    ----------
+    Linux man-pages, chattr(1) (the immutable ``i`` and append-only ``a`` attributes:
+    such a file cannot be deleted or renamed, also by root) and unlink(2) (``EPERM``)
+    (m).
+    """
+    if not old.exists():
+        return
+    failures = []
+    shutil.rmtree(old, onerror=lambda function, path, info: failures.append((path, info[1])))
+    if not old.exists():
+        return
+    path, error = failures[0] if failures else (old, None)
+    cause = getattr(error, "strerror", None) or str(error or "it is still there")
+    say = notify if notify is not None else (
+        lambda text: print(text, file=sys.stderr, flush=True))
+    say(f"note: the new result is complete, but the earlier one could not be removed whole "
+        f"({cause}: {str(path)!r}; a file kept immutable, chattr +i, or not yours?); it "
+        f"stays in {str(old)!r} beside the new one: remove it by hand once it may go")
 
 
 def _write_tables(staging: Path, directory: Path, tables: dict, *, site, config, seed,

@@ -80,6 +80,7 @@ import pandas as pd
 from .config import Config
 from .errors import FluxpartError, InputFileError, OutputError
 from .fingerprint import code_fingerprint, platform_differences, platform_record
+from .io import broken_link
 from .manifest import (
     CAUTION,
     escaped_paths,
@@ -895,7 +896,7 @@ def _why_not_a_file(path: Path, hint: str = "") -> str:
         # a named pipe or a device (`--input <(zcat x.gz)`, /dev/stdin) was "does not exist"
         return ("is not a plain file (a pipe or a device); give the file itself (unpacked "
                 f"where it was compressed){hint}")
-    return "does not exist"
+    return broken_link(path) or "does not exist"
 
 
 def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: list):
@@ -1016,6 +1017,12 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
             if not _matching(path, sha):
                 path = next((p for p in beside_config if _matching(p, sha)), path)
             if path is None or not path.is_file():
+                broken = "" if path is None else broken_link(path)
+                if broken:
+                    raise InputFileError(f"verify: the input file {str(path)!r} recorded in "
+                                         f"the manifest {broken.split(';')[0]}; point the "
+                                         "link at the file again, or give the file's "
+                                         "location with --input")
                 raise InputFileError(f"verify: the input file {str(path)!r} recorded in the "
                                      "manifest (relative to the result folder) does not exist; "
                                      "give its new location with --input")
@@ -1113,8 +1120,12 @@ def _restored_copy(data: bytes, name: str, scratch: Path, number: int) -> Path:
 
 
 def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch: Path,
-               notes: list):
-    """Return (source, result or None, input differences)."""
+               notes: list, stored_timeseries=None):
+    """Return (source, result or None, input differences).
+
+    An input file that is not the recorded one is compared with the input values the
+    stored time series holds (`stored_timeseries`, :func:`fluxpart.input_changes.
+    located_changes`), so the difference says what was edited."""
     from .pipeline import process, process_site_config
 
     provenance = manifest["provenance"]
@@ -1155,6 +1166,18 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
     data_path, changed = _input_files(directory, recorded_input, input_path, locating,
                                       provenance["site_config"].get("sha256"), scratch, notes)
     if changed is not None:
+        if changed.column == "input file" and not isinstance(recorded_input.get("files"),
+                                                             list):
+            from .input_changes import located_changes
+
+            reader = provenance.get("reader")
+            located = located_changes(site_config, Path(changed.row), stored_timeseries,
+                                      reader.get("columns") if isinstance(reader, dict)
+                                      else None)
+            if located:
+                changed = dataclasses.replace(
+                    changed, cause="it is not the input file the result was computed "
+                                   f"from; {located}")
         return "run", None, [changed]
     if provenance.get("settings") == "site config":
         # the settings came from the site config's [processing] table: rerun from it,
@@ -1422,8 +1445,11 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     with tempfile.TemporaryDirectory(prefix=f"{_SCRATCH_PREFIX}{os.getpid()}-") as scratch:
         scratch = Path(scratch)
         try:
-            source, result, input_differences = _recompute(directory, manifest, input_path,
-                                                           config_path, scratch, notes)
+            source, result, input_differences = _recompute(
+                directory, manifest, input_path, config_path, scratch, notes,
+                # the input values a result holds locate an edited input only where the
+                # folder is the one its manifest describes (seal and every SHA-256)
+                None if differences else stored_tables.get("timeseries"))
         except FluxpartError as error:
             if not differences:
                 raise
