@@ -471,6 +471,8 @@ def _decimals(unit: str, column: str, dtype) -> int:
         return 3
     if unit == _FLUX_UNIT:
         return 2
+    if unit == "µmol J-1":                      # a light-use efficiency: 0.001-0.1
+        return 4
     return 3
 
 
@@ -789,7 +791,13 @@ def _screening_table(written: Written) -> str:
             f"<tbody>{''.join(rows)}</tbody></table>")
 
 
-def _windows_html(written: Written) -> str:
+def _windows_html(written: Written, metadata: dict) -> str:
+    """The light-response windows that are not plainly accepted, as a table.
+
+    `metadata`: column -> (unit, description) of ``parameters_daytime`` as the result
+    folder stores them (:func:`_field_metadata`), so each parameter's header shows its
+    unit (alpha in µmol J-1 of Rg, beta0 and rref in µmol m-2 s-1, k in hPa-1).
+    """
     parameters = written.table("parameters_daytime")
     if not len(parameters):
         return ""
@@ -802,10 +810,9 @@ def _windows_html(written: Written) -> str:
     frame = flagged[columns].assign(state=states.loc[flagged.index, "state"],
                                     why=states.loc[flagged.index, "why"])
     frame = frame[[*columns[:2], "state", "why", *columns[2:]]] if len(columns) >= 2 else frame
-    meta = {}
     return (f"<h3>Light-response windows</h3><p>{len(parameters)} windows: {_e(tally)}. "
             "Windows that are not plainly accepted:</p>"
-            + _frame_table(frame.reset_index(drop=True), meta, "daytime-windows", "window"))
+            + _frame_table(frame.reset_index(drop=True), metadata, "daytime-windows", "window"))
 
 
 def _provenance(manifest: dict) -> str:
@@ -819,10 +826,14 @@ def _provenance(manifest: dict) -> str:
                          f"{_e(entry.get('sha256', ''))}</span></td></tr>")
     if "demo" in provenance:
         parts.append(f'<tr><th scope="row">demo</th><td>invented demo data: '
-                     f"{_e(provenance['demo'])}</td></tr>")
+                     f"{_e(_plain(provenance['demo']))}</td></tr>")
     if "clock" in provenance:
-        parts.append(f'<tr><th scope="row">clock check</th><td>{_e(provenance["clock"])}'
-                     "</td></tr>")
+        clock = provenance["clock"]
+        recorded = _plain(clock)
+        if isinstance(clock, dict):
+            recorded = (f"{clock_sentence(manifest)} (positive shift: Rg later than the sun)."
+                        f" Recorded: {recorded}")
+        parts.append(f'<tr><th scope="row">clock check</th><td>{_e(recorded)}</td></tr>')
     driver = provenance.get("respiration_driver")
     if isinstance(driver, dict):
         chosen = driver.get("chosen", driver.get("setting", ""))
@@ -847,6 +858,23 @@ def _provenance(manifest: dict) -> str:
     return (f'<table id="provenance"><tbody>{"".join(parts)}</tbody></table>'
             '<table id="table-hashes"><thead><tr><th scope="col">Table</th><th scope="col">Rows'
             f'</th><th scope="col">SHA-256</th></tr></thead><tbody>{tables}</tbody></table>')
+
+
+def _plain(value) -> str:
+    """A manifest entry as plain words: ``key: value`` pairs separated by semicolons,
+    list items by slashes, None and an empty list as "none", booleans as yes / no (a reader
+    meets no Python dict or list notation)."""
+    if isinstance(value, dict):
+        return "; ".join(f"{str(key).replace('_', ' ')}: {_plain(item)}"
+                         for key, item in value.items())
+    if isinstance(value, (list, tuple)):
+        # items may be sentences with commas of their own (a clock problem)
+        return " / ".join(_plain(item) for item in value) if value else "none"
+    if value is None:
+        return "none"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    return str(value)
 
 
 def _details(title: str, body: str, ident: str) -> str:
@@ -902,7 +930,8 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
                     + _frame_table(e0_annual.reset_index(),
                                    metadata("parameters_nighttime_e0_annual"), "e0-annual",
                                    "year") if len(e0_annual) else "")
-                 + _windows_html(written), "details-parameters"),
+                 + _windows_html(written, metadata("parameters_daytime")),
+                 "details-parameters"),
         _details("Site, inputs, versions and table hashes",
                  _site_table(written, interval) + _provenance(manifest), "details-provenance"),
     ]

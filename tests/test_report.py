@@ -533,6 +533,54 @@ def test_columns_of_current_runs_are_shown(folder):
     assert "no daily 1-sigma" not in text
 
 
+def test_light_response_window_parameters_show_their_units(folder):
+    """The table of light-response windows that are not plainly accepted gives each
+    parameter's unit, as the other tables of the page do: the rectangular hyperbola of
+    Lasslop et al. (2010) (m), NEE = -alpha beta Rg / (alpha Rg + beta) + Rref f(T), with
+    Rg in W m-2 and fluxes in µmol m-2 s-1, makes alpha µmol J-1 and beta0 and Rref
+    µmol m-2 s-1, and its VPD limit exp(-k (VPD - 10 hPa)) makes k hPa-1. Before
+    review25 the headers had no unit (the table was drawn without the field metadata)."""
+    text = folder["text"]
+    table = re.search(r'<table id="daytime-windows"><thead>(.*?)</thead>', text).group(1)
+    headers = {name: html.unescape(unit) for name, unit in re.findall(
+        r'<th scope="col">([a-z0-9_]+)(?:<br><span class="unit">\[([^\]]*)\]</span>)?</th>',
+        table)}
+    assert headers["alpha"] == "µmol J-1"
+    assert headers["beta0"] == headers["rref"] == "µmol m-2 s-1"
+    assert headers["k"] == "hPa-1"
+    # the units agree with the ones the Parquet file stores for those columns
+    schema = pq.read_schema(folder["directory"] / "parameters_daytime.parquet")
+    stored = {f.name: (f.metadata or {}).get(b"unit", b"").decode() for f in schema}
+    assert stored["alpha"] == "umol J-1" and stored["k"] == "hPa-1"
+    # alpha, a light-use efficiency of 0.001-0.1, is not rounded to 0.00x
+    alphas = re.findall(r'<td data-column="alpha"[^>]*data-decimals="(\d)"', text)
+    assert alphas and set(alphas) == {"4"}
+
+
+def test_the_provenance_table_reads_as_words_not_python(folder):
+    """The clock check and demo rows of the provenance table are plain words with the
+    values the manifest records (read back with the standard library's json), not a
+    Python dict's repr ({'status': ..., 'problems': [], ... None}), as they were before
+    review25."""
+    import json
+
+    manifest = json.loads((folder["directory"] / "manifest.json").read_text())
+    table = re.search(r'<table id="provenance">(.*?)</table>', folder["text"]).group(1)
+    rows = {html.unescape(name): html.unescape(value) for name, value in
+            re.findall(r'<th scope="row">([^<]*)</th><td>([^<]*)</td>', table)}
+    clock = manifest["provenance"]["clock"]
+    shown = rows["clock check"]
+    assert "{" not in shown and "'" not in shown and "None" not in shown
+    assert shown.startswith(figures.clock_sentence(manifest))
+    assert f"shift minutes: {clock['shift_minutes']}" in shown
+    assert f"status: {clock['status']}" in shown
+    assert f"months used: {clock['months_used']}" in shown
+    demo_row = rows["demo"]
+    assert "{" not in demo_row and demo_row.endswith("seed: 0; variant: c3")
+    assert report._plain({"problems": ["a, b", "c"], "flag": True, "none": None}) == \
+        "problems: a, b / c; flag: yes; none: none"
+
+
 def test_the_clock_check_reads_as_a_sentence():
     """The run's clock verdict (status, shift, spread, first problem) in plain words."""
     manifest = {"provenance": {"clock": {
