@@ -1173,6 +1173,38 @@ def test_methods_name_the_fill_estimate_the_result_was_made_with():
     assert abs(fills["local_linear"] - truth) < 0.2 * abs(fills["donor_mean"] - truth)
 
 
+def test_methods_name_the_respiration_form_and_temperature_the_result_used(folder):
+    """The methods said "Nighttime partitioning: Lloyd–Taylor respiration" alone, while
+    a default run's central nighttime Reco is the BIC-weighted average of Lloyd–Taylor
+    and a constant Q10 (respiration_form = "average", since 0.10.0) and its temperature
+    chosen by BIC (review25). Now they say so where the result's config does, citing
+    Bayesian model averaging (Hoeting et al. 1999) and the criterion (Schwarz 1978);
+    a result with Lloyd–Taylor alone, or written before 0.10.0, is not told it averaged.
+    The weight the item points to is in the manifest, between 0 and 1 (a probability)."""
+    import json
+
+    def night_item(config):
+        listed, cited = report._methods(config, False)
+        item = next(i for i in listed.split("<li>") if i.startswith("Nighttime"))
+        return html.unescape(item), cited
+
+    item, cited = night_item({"respiration_form": "average", "respiration_driver": "auto"})
+    assert "constant Q10" in item and "Hoeting et al. 1999" in item
+    assert "Schwarz 1978" in item and {"hoeting1999", "schwarz1978"} <= set(cited)
+    item, cited = night_item({"respiration_form": "lloyd_taylor", "respiration_driver": "tsoil"})
+    assert "Q10" not in item and "hoeting1999" not in cited and "soil temperature" in item
+    item, cited = night_item({})                          # before 0.5.0 / 0.10.0
+    assert "Q10" not in item and "BIC" not in item and "Bayesian" not in item
+    # the page of the default run, with every reference it cites in its list
+    text = html.unescape(folder["text"])
+    assert "The central nighttime Reco is the average" in text
+    assert "Statistical Science 14:382–417" in text and "Annals of Statistics 6:461–464" in text
+    manifest = json.loads((folder["directory"] / "manifest.json").read_text())
+    form = manifest["provenance"]["respiration_form"]
+    weights = [v for k, v in form.items() if "weight" in k and isinstance(v, (int, float))]
+    assert weights and all(0.0 <= w <= 1.0 for w in weights)
+
+
 def test_a_budget_year_of_one_calendar_years_records_shows_that_years_range():
     """A July-June budget year labelled 2020 whose records all lie in January-June 2021 (a
     record that starts in January, ``year_start = "07-01"``) applies the 2021 threshold; its
