@@ -468,7 +468,8 @@ def _parser() -> argparse.ArgumentParser:
     verify.add_argument("--exact", action="store_true",
                         help="demand bit identity: rounding differences exit 1")
     verify.add_argument("--quiet", action="store_true",
-                        help="print only the verdict and the caution (same exit status)")
+                        help="print only the verdict, the result: line naming which "
+                        "result the folder holds, and the caution (same exit status)")
     verify.set_defaults(handler=_lazy("verify", "command_verify"))
 
     diff = commands.add_parser(
