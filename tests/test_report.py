@@ -555,6 +555,20 @@ def test_light_response_window_parameters_show_their_units(folder):
     # alpha, a light-use efficiency of 0.001-0.1, is not rounded to 0.00x
     alphas = re.findall(r'<td data-column="alpha"[^>]*data-decimals="(\d)"', text)
     assert alphas and set(alphas) == {"4"}
+    # the example panels of the light-response figure give the same units beside the values
+    written = read_written(folder["directory"])
+    drawing = figures.Drawing()
+    made = []
+    draw = drawing.figure
+    drawing.figure = lambda *args, **kwargs: made.append(draw(*args, **kwargs)) or made[-1]
+    with drawing.mpl.rc_context():
+        figures.figure_light_response(drawing, written)
+    boxes = [t.get_text() for axis in made[0].axes for t in axis.texts if "α =" in t.get_text()]
+    assert boxes
+    for box in boxes:
+        lines = dict(line.split(" = ") for line in box.splitlines())
+        assert lines["α"].endswith(" µmol J-1") and lines["k"].endswith(" hPa-1")
+        assert lines["β0"].endswith(" µmol m-2 s-1") and lines["Rref"].endswith(" µmol m-2 s-1")
 
 
 def test_the_provenance_table_reads_as_words_not_python(folder):
