@@ -919,6 +919,10 @@ def test_format_check_text(tmp_path):
     table_lines = [line for line in text.splitlines() if line.startswith(("variable", "nee "))]
     assert len(table_lines) == 2
     assert table_lines[0].index("present") < table_lines[0].index("longest gap")
+    # known truth: the 4 stamps removed in a row are the longest gap, 4 records of 30 min
+    # = 0.083 d, and the header says the first number counts records (review25)
+    assert "longest gap [records]" in table_lines[0]
+    assert " 4 (0.1 d) " in table_lines[1]
     assert "problems found (1)" in text and "nee: 2 value(s) outside" in text
     assert text.endswith("\n")
 
