@@ -1538,7 +1538,8 @@ def _summary(report: BatchReport) -> str:
              f"{report.skipped} up to date (skipped), {report.failed} failed"]
     if len(report.network):
         columns = [c for c in _SUMMARY_COLUMNS if c in report.network.columns]
-        lines += ["", "Annual budgets [g C m-2; NEE < 0 is net uptake]:",
+        lines += ["", "Annual budgets [g C m-2; NEE < 0 is net uptake; ustar_threshold in "
+                  "m s-1]:",
                   report.network[columns].to_string(
                       index=False, float_format=lambda v: f"{v:9.1f}",
                       # u* thresholds in m s-1 need their three decimals (0.177, not 0.2)

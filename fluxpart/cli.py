@@ -38,7 +38,8 @@ def _format_annual(annual) -> str:
     """The annual budget, its uncertainty budget and the carbon-accounting units, as text."""
     columns = [c for c in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime",
                            "reco_daytime", "share_measured", "complete") if c in annual.columns]
-    lines = ["Annual budget [g C m-2; NEE < 0 is net uptake; share_measured of records]:",
+    lines = ["Annual budget [g C m-2; NEE < 0 is net uptake; share_measured: share of the "
+             "records with measured NEE; complete: every record present and NEE filled]:",
              annual[columns].to_string(float_format=lambda v: f"{v:9.2f}")]
     if "period_start" in annual.columns and any(
             (start.month, start.day) != (1, 1) for start in annual["period_start"]):
@@ -492,7 +493,8 @@ def _parser() -> argparse.ArgumentParser:
     verify.add_argument("--exact", action="store_true",
                         help="demand bit identity: rounding differences exit 1")
     verify.add_argument("--quiet", action="store_true",
-                        help="print only the verdict and the caution (same exit status)")
+                        help="print only the verdict, the result: line naming which "
+                        "result the folder holds, and the caution (same exit status)")
     verify.set_defaults(handler=_lazy("verify", "command_verify"))
 
     diff = commands.add_parser(

@@ -716,6 +716,15 @@ def _shifted_run(used: pd.DataFrame, threshold: float):
 
     Only months with a sunrise and a sunset count: under the midnight sun the low sun
     circles the horizon, and a tilted sensor moves both the peak and the edges.
+
+    A run is a period on another clock only where its shift differs from the median of
+    the other months by the threshold or more: a clock set otherwise for a period moves
+    that period against the rest by its step. A run shifted as much as the rest is the
+    whole record's shift, which :func:`check_clock` judges on its own (review25: a
+    sensor shaded every afternoon, whose shade in the winter months also covers the
+    sunset, was called "from 2021-01 to 2021-04 ... 43 min earlier than the sun ...
+    against -44 min in the rest of the record: the logger clock was off in that period",
+    and ``run`` refused it).
     """
     used = used[used["sun_sets"].astype(bool)]
     peak = used["shift_minutes"].to_numpy()
@@ -741,7 +750,10 @@ def _shifted_run(used: pd.DataFrame, threshold: float):
         if off[start] and i - start >= 3:
             values = peak[start:i]
             size = float(np.median(values))
-            if np.ptp(values) <= 2.0 * max(10.0, 0.3 * abs(size)):
+            rest = np.concatenate([peak[:start], peak[i:]])
+            rest = rest[np.isfinite(rest)]
+            if np.ptp(values) <= 2.0 * max(10.0, 0.3 * abs(size)) and (
+                    rest.size == 0 or abs(size - float(np.median(rest))) >= threshold):
                 return used.index[start], used.index[i - 1], size
         start = i
     return _short_shifted_run(used, off, peak, months, threshold)

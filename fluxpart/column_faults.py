@@ -1552,9 +1552,16 @@ def storage_in_turbulent_flux(turbulent, storage, stamps, columns=None) -> str |
     Returns
     -------
     str or None
-        The warning text; None where the turbulent column falls with the storage term
-        as a turbulent flux does, the slope is not resolved, or fewer than
-        ``8`` blocks of 10 days hold both columns.
+        The warning text, one of (checked in this order): the storage column is a
+        level, not a change (its daily means lie more than ``_STORAGE_LEVEL_RATIO``
+        times its within-day spread from 0); it is too small for the turbulent flux
+        (slope below ``_STORAGE_SLOPE_TOO_SMALL`` = -5 by three standard errors, e.g.
+        mg CO2 read as µmol); it has the opposite sign (slope above +0.5 by three
+        standard errors); the column mapped as nee already holds the storage term
+        (slope above -0.5 by three standard errors). None where the turbulent column
+        falls with the storage term as a turbulent flux does, the slope is not
+        resolved, or fewer than ``_STORAGE_MIN_BLOCKS`` = 8 blocks of
+        ``_STORAGE_BLOCK_DAYS`` = 10 days hold both columns.
 
     Notes
     -----

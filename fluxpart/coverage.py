@@ -127,7 +127,9 @@ def _longest_run(mask: np.ndarray) -> int:
 
 
 def _format_table(table: pd.DataFrame) -> str:
-    header = ["variable", "unit", "present", "longest gap", "first present", "last present",
+    # the gap's length in records, then in days: "261 (5.4 d)" read as a unitless 261
+    header = ["variable", "unit", "present", "longest gap [records]", "first present",
+              "last present",
               "min", "max", "outside"]
     body = []
     for name, row in table.iterrows():

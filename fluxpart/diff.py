@@ -93,12 +93,16 @@ class DiffReport:
                 lines.append(f"note: the folders hold two sites (first {names[0][0]}, second "
                              f"{names[0][1]}): the annual values below compare two sites, "
                              "not a result and its rerun")
-            width = max((len(f"{s} {n}") for s, n, _, _ in self.items), default=0)
-            for section, name, a, b in self.items:
+            # a field that is its own section (warnings, seed, caution, format) is named
+            # once: "warnings warnings" read as a typo (review25)
+            labels = [name if name == section else f"{section} {name}"
+                      for section, name, _, _ in self.items]
+            width = max((len(label) for label in labels), default=0)
+            for label, (_, _, a, b) in zip(labels, self.items, strict=True):
                 if a == b == "":        # a platform fact names both values itself
-                    lines.append(f"  {section} {name}")
+                    lines.append(f"  {label}")
                 else:
-                    lines.append(f"  {f'{section} {name}':<{width}}  first {a}  second {b}")
+                    lines.append(f"  {label:<{width}}  first {a}  second {b}")
             if not self.annual.empty:
                 lines.append("How the annual numbers moved (units of each column; change = "
                              "second - first; relative = change / |first|):")

@@ -1746,8 +1746,10 @@ def figure_light_response(drawing, written) -> Figure:
             for spine in axis.spines.values():
                 spine.set_edgecolor(_VERMILLION)
                 spine.set_linewidth(1.6)
-        axis.text(0.98, 0.97, f"α = {window['alpha']:.4f}\nβ0 = {window['beta0']:.1f}\n"
-                  f"k = {window['k']:.3f}\nRref = {window['rref']:.2f}"
+        # each parameter with its unit, as the page's window table gives them
+        axis.text(0.98, 0.97, f"α = {window['alpha']:.4f} µmol J-1\n"
+                  f"β0 = {window['beta0']:.1f} {_FLUX_UNIT}\nk = {window['k']:.3f} hPa-1\n"
+                  f"Rref = {window['rref']:.2f} {_FLUX_UNIT}"
                   + (f"\ncurvature = {bend:.2f}" if bend > 0 else ""), transform=axis.transAxes,
                   ha="right", va="top", fontsize=7.5,
                   bbox={"facecolor": "white", "edgecolor": "#bbbbbb", "alpha": 0.85})

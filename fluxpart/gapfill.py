@@ -1271,8 +1271,10 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         averaged, in the target's unit; NaN for measured and unfilled) and
         ``quality`` (int8: 0 measured, 1 A, 2 B, 3 C, -1 unfilled; labels in
         :data:`QUALITY_NAMES`). With ``breaks`` and a gap filled across one of them,
-        ``attrs["events_crossed"]``: a list of (break position joined, first and last
-        position of the records filled from the joined pieces, their number), ints.
+        ``attrs["events_crossed"]``: a list of (first and last record position of the
+        joined piece's span [start, stop), first and last position of the records the
+        join filled, their number), ints; the events crossed are the breaks inside the
+        span.
 
     Raises
     ------
@@ -1390,9 +1392,12 @@ def _fill_pieces(fill, values, wanted, breaks) -> tuple:
     too few measured records between them) is filled from its piece joined to the next
     one (the last piece: to the one before), joined further until it fills or the record
     is whole again; its neighbours' records are then closer to its conditions than
-    none. Returns the columns and, per join, (break position dropped, first and last
-    position of the records filled across it, their number) in a list (empty where every
-    gap filled in its own piece).
+    none. Returns the columns and, per join that filled a record, (start and stop of the
+    joined piece, first and last position of the records that join filled, their number)
+    in a list (empty where every gap filled in its own piece). A record a join leaves
+    unfilled is counted only by the join that fills it, whose piece spans every event
+    dropped before it (review25: three events in an outage had the first join's
+    warning count records the next join filled, naming one event of the two crossed).
     """
     n = values.size
     edges = [0, *sorted({int(b) for b in (() if breaks is None else breaks) if 0 < b < n}), n]
@@ -1409,13 +1414,16 @@ def _fill_pieces(fill, values, wanted, breaks) -> tuple:
             break
         k = int(np.searchsorted(edges, np.argmax(left), side="right")) - 1
         drop = k + 1 if k + 2 < len(edges) else k
-        joined = edges.pop(drop)
+        edges.pop(drop)
         piece = slice(edges[drop - 1], edges[drop])
-        records = np.flatnonzero(left[piece]) + piece.start
-        # plain ints: pandas compares and copies a frame's attrs in its operations
-        crossed.append((joined, int(records[0]), int(records[-1]), int(records.size)))
-        for column, part in zip(columns, fill(piece, left[piece]), strict=True):
-            column[piece] = np.where(left[piece], part, column[piece])
+        part = fill(piece, left[piece])
+        for column, values_of_part in zip(columns, part, strict=True):
+            column[piece] = np.where(left[piece], values_of_part, column[piece])
+        records = np.flatnonzero(left[piece] & (part[1] != METHOD_UNFILLED)) + piece.start
+        if records.size:
+            # plain ints: pandas compares and copies a frame's attrs in its operations
+            crossed.append((int(piece.start), int(piece.stop), int(records[0]),
+                            int(records[-1]), int(records.size)))
     return columns, crossed
 
 
@@ -1473,18 +1481,20 @@ def crossed_event_notes(index, events, crossed) -> list:
         Record starts (local standard time) of the fill.
     events : sequence of str
         ``Config.events`` (ISO 8601, local standard time).
-    crossed : list of (int, int, int, int)
-        Per join: the break position dropped, the first and last position of the
-        records filled from the joined pieces, and their number.
+    crossed : list of (int, int, int, int, int)
+        Per join: the start and stop position of the joined piece, the first and last
+        position of the records that join filled, and their number.
 
     Returns
     -------
     list of str
-        One warning per join naming its records and the event crossed; empty where none.
+        One warning per join naming its records and the events its piece crosses;
+        empty where none.
     """
     notes = []
-    for position, first_record, last_record, count in crossed:
-        names = [event for event in events if position in event_breaks(index, [event])]
+    for start, stop, first_record, last_record, count in crossed:
+        names = [event for event in events
+                 if any(start < b < stop for b in event_breaks(index, [event]))]
         first, last = (f"{index[i]:%Y-%m-%d %H:%M}" for i in (first_record, last_record))
         where = (f"1 NEE record at {first}" if count == 1
                  else f"{count} NEE records from {first} to {last}")
@@ -1492,7 +1502,8 @@ def crossed_event_notes(index, events, crossed) -> list:
             f"events: {where} (interval starts) could not be filled from "
             "their own piece of the record (too few measured records between the events or "
             f"the record's edge around them); they were filled across {', '.join(names)} "
-            "from the neighbouring piece as well, rather than left unfilled")
+            f"from the neighbouring piece{'s' if len(names) > 1 else ''} as well, rather "
+            "than left unfilled")
     return notes
 
 

@@ -206,6 +206,10 @@ class ReadReport:
         Site-flag values that keep a record.
     flag_rejected : int
         Records the site's flag(s) reject.
+    flag_rejected_with_nee : int or None
+        Of those, the records that hold an NEE value (the others lack one anyway, and
+        screening counts them as ``missing``); shown by ``fluxpart check``, not part of
+        :meth:`to_dict` (the manifest's reader record is unchanged). None: not counted.
     storage_missing : int
         Records with a turbulent flux but no storage term, whose NEE was set missing.
     accepted_units : tuple of str
@@ -248,6 +252,7 @@ class ReadReport:
     nonfinite_cells: dict = field(default_factory=dict)
     flag_accept: tuple = _DEFAULT_FLAG_ACCEPT
     flag_rejected: int = 0
+    flag_rejected_with_nee: int | None = None
     storage_missing: int = 0
     accepted_units: tuple = ()
     unit_refusals: tuple = ()
@@ -302,8 +307,13 @@ class ReadReport:
             lines.append("non-finite        " + ", ".join(f"{k}: {v}" for k, v in nonfinite.items())
                          + " (read as missing)")
         if "nee_flag" in self.columns:
+            with_nee = self.flag_rejected_with_nee
             lines.append(f"site flag         keeps values {list(self.flag_accept)}; "
-                         f"{self.flag_rejected} record(s) rejected")
+                         f"{self.flag_rejected} record(s) rejected"
+                         + (f", {with_nee} of them with an NEE value (the others have "
+                            "none; screening counts those as missing)"
+                            if with_nee is not None and with_nee != self.flag_rejected
+                            else ""))
         if self.storage_missing:
             lines.append(f"storage           missing for {self.storage_missing} record(s) with "
                          "a flux: their NEE is missing")
@@ -899,11 +909,13 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             source_of["rg"] = f"{mapping['ppfd']} (ppfd / {PPFD_PER_RG:.2f} µmol J-1)"
         else:
             warnings.append("ppfd: mapped together with rg; rg is used and ppfd ignored")
-    flag_rejected = 0
+    flag_rejected, flag_rejected_with_nee = 0, None
     if flag_columns:
         flags = [combined["values"][_flag_key(column)] for column in flag_columns]
         converted["nee_flag"] = _combine_flags(flags, flag_accept)
         flag_rejected = int(np.nansum(converted["nee_flag"]))
+        flag_rejected_with_nee = int(np.sum((converted["nee_flag"] == 1)
+                                            & np.isfinite(converted["nee"])))
         source_of["nee_flag"] = " + ".join(flag_columns)
         judged = int(np.isfinite(converted["nee_flag"]).sum())
         # a flag that rejects most records is more likely a wrong flag_accept than a site
@@ -994,6 +1006,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         nonfinite_cells={name: combined["nonfinite_cells"][name] for name in mapping},
         flag_accept=flag_accept,
         flag_rejected=flag_rejected,
+        flag_rejected_with_nee=flag_rejected_with_nee,
         storage_missing=storage_missing,
         accepted_units=tuple(sorted(set(name for name in accepted if name))),
         unit_refusals=tuple(preflight or ()),

@@ -352,7 +352,8 @@ def _clock_and_preflight(frame, site, config, interval, geometry, is_night, scre
         frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),
         screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval,
         reader.get("columns"), sun_elevation=geometry["sun_elevation"].to_numpy())
-    return verdict, findings
+    return verdict, preflight.defer_to_clock(findings, None if verdict is None
+                                             else verdict.status)
 
 
 def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, *,

@@ -107,7 +107,8 @@ from .screening import site_flag
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
 
-__all__ = ["Finding", "MISSING_USTAR_SHARE", "RG_ABOVE_POTENTIAL_SHARE", "preflight"]
+__all__ = ["Finding", "MISSING_USTAR_SHARE", "RG_ABOVE_POTENTIAL_SHARE", "defer_to_clock",
+           "preflight"]
 
 #: Share of sunlit records whose Rg exceeds the potential radiation (beyond the
 #: screening margins) above which the screen's rejections are reported as clock or
@@ -825,6 +826,53 @@ def _days_text(span_days: float, interval_minutes: float) -> str:
     if span_days >= 364.95 and short > 0:
         return f"{span_days:.2f} days ({short} record(s) short of 365 days)"
     return f"{span_days:.1f} days"
+
+
+#: Clock verdicts under which the site's solar noon is not the record's: the stamps are
+#: shifted against the sun for the whole record or for its summer months.
+_CLOCK_MOVES_NOON = ("shifted", "daylight_saving")
+#: Findings that judge Rg against the sun's symmetry about the solar noon the site's
+#: settings predict (:func:`fluxpart.column_faults.shaded_rg`).
+_NOON_SYMMETRY_STAGES = ("input (rg shaded)",)
+
+
+def defer_to_clock(findings: list, clock_status: str | None) -> list:
+    """`findings` without those a clock shift explains, where the clock check found one.
+
+    Parameters
+    ----------
+    findings : list of Finding
+        The preflight's findings (:func:`preflight`).
+    clock_status : str or None
+        ``ClockVerdict.status`` of the clock check (:func:`fluxpart.clock.check_clock`);
+        None where the check was off.
+
+    Returns
+    -------
+    list of Finding
+        `findings` in their order, less the shaded-Rg finding where the clock check
+        found the stamps shifted against the sun (``"shifted"``, ``"daylight_saving"``).
+
+    Notes
+    -----
+    The shading check compares Rg at equal times before and after solar noon, where the
+    sun stands at the same height (Iqbal 1983 (m)). Stamps an hour off move the
+    measured day against the noon the settings predict, so one half of it sees the sun
+    higher than the other at the same distance from that noon, and the check read a
+    clock an hour off as a sensor shaded for part of the day, telling the user to move
+    the sensor beside the clock check's right fix (the example site at
+    ``utc_offset = 2``: "the afternoon reaches a median 0.39 of the morning's
+    clearness", review25). The clock check tells a shift from a shade by the rise and
+    fall of Rg, which a shade hardly moves; once the clock is fixed the shading check
+    judges the record again.
+
+    References
+    ----------
+    Iqbal, M. (1983). An Introduction to Solar Radiation. Academic Press (m).
+    """
+    if clock_status not in _CLOCK_MOVES_NOON:
+        return list(findings)
+    return [finding for finding in findings if finding.stage not in _NOON_SYMMETRY_STAGES]
 
 
 def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, rg_high,

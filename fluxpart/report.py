@@ -107,6 +107,17 @@ _REFERENCES = {
     "kopp2011": "Kopp, G. & Lean, J. L. (2011). A new, lower value of total solar irradiance: "
                 "evidence and climate significance. Geophysical Research Letters 38, L01706. "
                 "doi:10.1029/2010GL045777",
+    "hoeting1999": "Hoeting, J. A., Madigan, D., Raftery, A. E. & Volinsky, C. T. (1999). "
+                   "Bayesian model averaging: a tutorial. Statistical Science 14:382–417. "
+                   "doi:10.1214/ss/1009212519",
+    "burnham2002": "Burnham, K. P. & Anderson, D. R. (2002). Model Selection and Multimodel "
+                   "Inference: A Practical Information-Theoretic Approach, 2nd ed. Springer, "
+                   "New York.",
+    "schwarz1978": "Schwarz, G. (1978). Estimating the dimension of a model. The Annals of "
+                   "Statistics 6:461–464.",
+    "richardson2007": "Richardson, A. D. & Hollinger, D. Y. (2007). A method to estimate the "
+                      "additional uncertainty in gap-filled NEE resulting from long gaps. "
+                      "Agricultural and Forest Meteorology 147:199–208.",
     "okabe2008": "Okabe, M. & Ito, K. (2008). Color Universal Design (CUD): how to make figures "
                  "and presentations that are friendly to colorblind people (colour palette of "
                  "the figures).",
@@ -471,6 +482,8 @@ def _decimals(unit: str, column: str, dtype) -> int:
         return 3
     if unit == _FLUX_UNIT:
         return 2
+    if unit == "µmol J-1":                      # a light-use efficiency: 0.001-0.1
+        return 4
     return 3
 
 
@@ -681,6 +694,35 @@ def _windows_cut(written: Written) -> bool:
     return found
 
 
+def _respiration_methods(config: dict) -> tuple[str, list[str]]:
+    """How the nighttime method chose its temperature and form, as the result's config
+    says, and the references it cites (review25: the methods named Lloyd–Taylor alone
+    while the central Reco of a default run averages it with a constant Q10).
+
+    A result written before 0.10.0 has no ``respiration_form``: its Reco was Lloyd–Taylor
+    alone; one before 0.5.0 has no ``respiration_driver`` and used air temperature.
+    """
+    text, cited = "", []
+    driver = config.get("respiration_driver")
+    if driver == "auto":
+        text += (" The respiration temperature, air or soil where both are measured, is the "
+                 "one whose fit explains the measured night NEE better (the Bayesian "
+                 "information criterion, Schwarz 1978); the table of inputs below names it "
+                 "and why.")
+        cited.append("schwarz1978")
+    elif driver in ("tair", "tsoil"):
+        text += (f" The respiration temperature is {'air' if driver == 'tair' else 'soil'} "
+                 "temperature, as set (respiration_driver).")
+    if config.get("respiration_form") == "average":
+        text += (" The central nighttime Reco is the average of this Lloyd–Taylor fit and "
+                 "the same method refitted with a constant Q10, weighted by the probability "
+                 "the night NEE gives each (BIC weights; Bayesian model averaging, Hoeting "
+                 "et al. 1999; Burnham & Anderson 2002); the weight is in the manifest's "
+                 "provenance.respiration_form.")
+        cited += ["hoeting1999", "burnham2002"]
+    return text, cited
+
+
 def _methods(config: dict, has_random: bool, soil: bool = False,
              windows_cut: bool = False) -> tuple[str, list[str]]:
     cited = ["papale2006", "reichstein2005", "lloyd1994", "lasslop2010", "kopp2011"]
@@ -695,6 +737,9 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
         cited.append("barr2013")
     else:
         ustar = f"a fixed threshold of {_setting_value(config.get('ustar_threshold'))} m s-1"
+    respiration, respiration_cited = _respiration_methods(config)
+    cited += respiration_cited
+    cited.append("richardson2007")
     items = [
         "Solar geometry and potential radiation from local standard time and longitude "
         f"(solar constant {SOLAR_CONSTANT:g} W m-2, Kopp & Lean 2011); night where Rg is below "
@@ -714,17 +759,21 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
         f"from the night data with a free Rref in each {_setting_value(config.get('e0_window_days'))}"
         f"-day window (e0_method = {_setting_value(config.get('e0_method'))}), Rref in "
         f"{_setting_value(config.get('rref_window_days'))}-day windows (Reichstein et al. "
-        "2005); GPP = Reco − NEE.",
+        f"2005); GPP = Reco − NEE.{respiration}",
         "Daytime partitioning: rectangular light response with VPD limitation of the "
         f"saturated assimilation, fitted in {_setting_value(config.get('daytime_window_days'))}"
         "-day windows (Lasslop et al. 2010), with its own E0: each window's estimate from the "
         "night data around it, pooled over the year by inverse variance (the daytime "
         "parameter table); a window whose fit sits at a bound, contradicts its night data or "
         "does not resolve respiration is refitted with Rref from its night data.",
-        "Uncertainty: the annual sums are recomputed with the u* threshold at bootstrap "
-        f"percentiles {_setting_value(config.get('ustar_scenarios'))}; the two partitioning "
-        "methods are compared against the agreement margin "
-        f"{_setting_value(config.get('agreement_margin'))}.",
+        "Uncertainty: parts of 1 sigma, combined as the root sum of squares, the stated 95 % "
+        "interval ±1.96 sigma about each sum: the random measurement error, gap filling "
+        "scored on artificial gaps of the site's own gap lengths (Richardson & Hollinger "
+        "2007), the u* threshold (the annual sums recomputed with the threshold at bootstrap "
+        f"percentiles {_setting_value(config.get('ustar_scenarios'))}), the fitted "
+        "parameters and the structural choices, each part where the result wrote it (the "
+        "uncertainty table); the two partitioning methods are compared against the "
+        f"agreement margin {_setting_value(config.get('agreement_margin'))}.",
         f"Carbon units: 1 µmol CO2 m-2 s-1 = {CARBON_MOLAR_MASS}e-6 g C m-2 s-1 (IUPAC "
         "standard atomic weight of carbon).",
     ]
@@ -821,7 +870,13 @@ def _screening_table(written: Written) -> str:
             f"<tbody>{''.join(rows)}</tbody></table>")
 
 
-def _windows_html(written: Written) -> str:
+def _windows_html(written: Written, metadata: dict) -> str:
+    """The light-response windows that are not plainly accepted, as a table.
+
+    `metadata`: column -> (unit, description) of ``parameters_daytime`` as the result
+    folder stores them (:func:`_field_metadata`), so each parameter's header shows its
+    unit (alpha in µmol J-1 of Rg, beta0 and rref in µmol m-2 s-1, k in hPa-1).
+    """
     parameters = written.table("parameters_daytime")
     if not len(parameters):
         return ""
@@ -834,10 +889,9 @@ def _windows_html(written: Written) -> str:
     frame = flagged[columns].assign(state=states.loc[flagged.index, "state"],
                                     why=states.loc[flagged.index, "why"])
     frame = frame[[*columns[:2], "state", "why", *columns[2:]]] if len(columns) >= 2 else frame
-    meta = {}
     return (f"<h3>Light-response windows</h3><p>{len(parameters)} windows: {_e(tally)}. "
             "Windows that are not plainly accepted:</p>"
-            + _frame_table(frame.reset_index(drop=True), meta, "daytime-windows", "window"))
+            + _frame_table(frame.reset_index(drop=True), metadata, "daytime-windows", "window"))
 
 
 def _provenance(manifest: dict) -> str:
@@ -851,10 +905,14 @@ def _provenance(manifest: dict) -> str:
                          f"{_e(entry.get('sha256', ''))}</span></td></tr>")
     if "demo" in provenance:
         parts.append(f'<tr><th scope="row">demo</th><td>invented demo data: '
-                     f"{_e(provenance['demo'])}</td></tr>")
+                     f"{_e(_plain(provenance['demo']))}</td></tr>")
     if "clock" in provenance:
-        parts.append(f'<tr><th scope="row">clock check</th><td>{_e(provenance["clock"])}'
-                     "</td></tr>")
+        clock = provenance["clock"]
+        recorded = _plain(clock)
+        if isinstance(clock, dict):
+            recorded = (f"{clock_sentence(manifest)} (positive shift: Rg later than the sun)."
+                        f" Recorded: {recorded}")
+        parts.append(f'<tr><th scope="row">clock check</th><td>{_e(recorded)}</td></tr>')
     driver = provenance.get("respiration_driver")
     if isinstance(driver, dict):
         chosen = driver.get("chosen", driver.get("setting", ""))
@@ -879,6 +937,23 @@ def _provenance(manifest: dict) -> str:
     return (f'<table id="provenance"><tbody>{"".join(parts)}</tbody></table>'
             '<table id="table-hashes"><thead><tr><th scope="col">Table</th><th scope="col">Rows'
             f'</th><th scope="col">SHA-256</th></tr></thead><tbody>{tables}</tbody></table>')
+
+
+def _plain(value) -> str:
+    """A manifest entry as plain words: ``key: value`` pairs separated by semicolons,
+    list items by slashes, None and an empty list as "none", booleans as yes / no (a reader
+    meets no Python dict or list notation)."""
+    if isinstance(value, dict):
+        return "; ".join(f"{str(key).replace('_', ' ')}: {_plain(item)}"
+                         for key, item in value.items())
+    if isinstance(value, (list, tuple)):
+        # items may be sentences with commas of their own (a clock problem)
+        return " / ".join(_plain(item) for item in value) if value else "none"
+    if value is None:
+        return "none"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    return str(value)
 
 
 def _details(title: str, body: str, ident: str) -> str:
@@ -934,7 +1009,8 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
                     + _frame_table(e0_annual.reset_index(),
                                    metadata("parameters_nighttime_e0_annual"), "e0-annual",
                                    "year") if len(e0_annual) else "")
-                 + _windows_html(written), "details-parameters"),
+                 + _windows_html(written, metadata("parameters_daytime")),
+                 "details-parameters"),
         _details("Site, inputs, versions and table hashes",
                  _site_table(written, interval) + _provenance(manifest), "details-provenance"),
     ]

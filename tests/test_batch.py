@@ -447,6 +447,11 @@ def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster
     summary = batch._summary(report)
     for value in report.network["ustar_threshold"].dropna():
         assert f"{value:.3f}" in summary
+    # ... and the header gives their unit as the network table stores it (review25: the
+    # header named g C m-2 alone, above a column of u* thresholds)
+    unit = pq.read_schema(folder / "site=tower0" / "part-0.parquet").field(
+        "ustar_threshold").metadata[b"unit"].decode()
+    assert unit == "m s-1" and f"ustar_threshold in {unit}" in summary
     assert report.failures.empty and pq.read_table(report.out / "failures.parquet").num_rows == 0
 
     # issue 15: the monthly and daily budgets are network datasets too, read back by

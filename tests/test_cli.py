@@ -57,6 +57,13 @@ def test_run_writes_the_result_folder(example, tmp_path, capsys):
     assert len(manifest["provenance"]["input"]["sha256"]) == 64
     annual = pd.read_parquet(out_dir / "annual.parquet")
     assert {"nee", "gpp_nighttime", "gpp_daytime", "ustar_threshold"} <= set(annual.columns)
+    # the header says what share_measured is ("share_measured of records" before review25),
+    # and the printed share is that, counted with pandas on the written time series
+    assert "share_measured: share of the records with measured NEE" in printed
+    series = pd.read_parquet(out_dir / "timeseries.parquet")
+    share = float((series["nee_fill_quality"].astype(str) == "measured").mean())
+    row = next(line for line in printed.splitlines() if line.startswith("2021 "))
+    assert f"{share:.2f}" == row.split()[6]
 
 
 def test_bad_config_is_one_clear_error_line(example, capsys):

@@ -271,6 +271,34 @@ def test_clock_off_for_part_of_the_record_is_named():
 
 
 
+def test_a_run_shifted_as_much_as_the_rest_is_no_period_on_another_clock():
+    """Known truth (the invented demo year, clock on time): the direct beam blocked every
+    afternoon from 14:30 to 17:30 (Rg x 0.3, a tree west of the sensor) moves each month's
+    Rg peak some 45 min early, and in the winter months, whose sunset falls in the shade,
+    the rise and fall too. The run of those months was named "from 2021-01 to 2021-04
+    measured Rg comes 43 min earlier than the sun ..., against -44 min in the rest of the
+    record: the logger clock was off in that period", a period no different from the
+    rest, and `run` refused the record (review25). A clock set otherwise for a period
+    moves it against the rest by its step (Iqbal 1983, ch. 1 (m): zones differ by whole
+    or half hours), so a run is named only where it differs from the other months by the
+    threshold; the shade is left to the note and the shading check. A period truly an
+    hour off (the last ten months of two years) is still named
+    (test_clock_off_for_part_of_the_record_is_named)."""
+    from fluxpart import demo
+
+    frame, _ = demo.site_year(seed=1)
+    site = demo.site()
+    rg = frame["rg"]
+    hour = rg.index.hour + rg.index.minute / 60
+    shaded = rg.where(~((hour >= 14.5) & (hour < 17.5)), rg * 0.3)
+    verdict = _check(shaded, site.latitude, site.longitude, site.utc_offset, 30)
+    assert verdict.status == "consistent", verdict.problems
+    assert not any("in that period" in problem for problem in verdict.problems)
+    assert any("partly shaded" in note for note in verdict.notes)
+    # the unshaded year is on time
+    assert _check(rg, site.latitude, site.longitude, site.utc_offset, 30).problems == ()
+
+
 @pytest.mark.parametrize("minutes", [10, 20, 30, 60])
 def test_lagged_potential_equals_the_direct_computation(minutes):
     """The lags reused from one record later equal potential radiation computed at the

@@ -73,6 +73,24 @@ def test_another_seed_is_listed_once():
     assert ("seed", "seed", "0", "7") in _recorded_items(first, edited)
 
 
+def test_a_field_that_is_its_own_section_is_named_once():
+    """The diff printed "warnings warnings ..." and "seed seed ..." (section and field of
+    the same name) where other lines read "setting seed" (review25): such a field is named
+    once, and every line's values still start in one column."""
+    from pathlib import Path
+
+    from fluxpart.diff import DiffReport
+
+    report = DiffReport(Path("a"), Path("b"), items=(
+        ("warnings", "warnings", "[]", '["events: ..."]'), ("seed", "seed", "0", "7"),
+        ("setting", "events", "(absent)", '["2021-07-20"]')))
+    lines = report.format().splitlines()[2:5]
+    assert lines[0].startswith("  warnings ") and "warnings warnings" not in lines[0]
+    assert lines[1].startswith("  seed ") and "seed seed" not in lines[1]
+    assert lines[2].startswith("  setting events ")
+    assert len({line.index(" first ") for line in lines}) == 1
+
+
 def test_two_sites_are_said_to_be_no_rerun(folders, capsys):
     """Folders of two towers: a note under the count says the annual moves compare two
     sites (review, round five); two results of one site get no such note."""

@@ -1247,8 +1247,9 @@ def test_a_piece_too_short_to_fill_itself_is_filled_across_its_event(minutes):
     # up to -22 µmol m-2 s-1 at high light
     assert abs(np.mean(out["value"].to_numpy()[between] - truth[between])) < 1.0
     crossed = out.attrs["events_crossed"]
-    assert sorted(join[0] for join in crossed) == [breaks[1], breaks[2]]
-    first, last, count = next(join[1:] for join in crossed if join[0] == breaks[1])
+    # per join: the joined piece's span, then the records that join filled
+    assert [join[:2] for join in crossed] == [(breaks[0], breaks[2]), (breaks[0], len(index))]
+    first, last, count = crossed[0][2:]
     assert (index[first], index[last], count) == (index[between][0], index[between][-1],
                                                   between.sum())
     assert all(isinstance(value, int) for join in crossed for value in join)
@@ -1260,6 +1261,36 @@ def test_a_piece_too_short_to_fill_itself_is_filled_across_its_event(minutes):
     assert len(notes) == 2 and events[1] in notes[0] and events[2] in notes[1]
     assert f"from {harvest:%Y-%m-%d %H:%M} to" in notes[0]
     assert all(events[0] not in note.split("across")[1] for note in notes)
+
+
+def test_records_a_join_leaves_unfilled_are_counted_by_the_join_that_fills_them():
+    """Known-truth recovery (invented data): a harvest, the baling 3 h and the ploughing
+    5 h after it, all within an outage. The first join (harvest-to-baling piece with the
+    baling-to-ploughing piece) holds no measured record and fills nothing; the second,
+    with the bare ground after the ploughing, fills all. The warning counted the first
+    join's records as "filled across" the baling and the second join's again, naming one
+    event each (review25). Now one join is listed, with every record it filled, and its
+    note names both events its piece crosses."""
+    index, measured, drivers, truth, _, _, _ = _harvested(0)
+    night = _night(drivers)
+    harvest = index[0] + pd.Timedelta(days=40, hours=10)    # within the outage (days 35-45)
+    events = [f"{harvest + pd.Timedelta(hours=h):%Y-%m-%d %H:%M}" for h in (0, 3, 5)]
+    breaks = event_breaks(index, events)
+    out = fill_marginal_module(measured, drivers, index, is_night=night, breaks=breaks)
+    between = (index >= harvest) & (index < harvest + pd.Timedelta(hours=5))
+    assert np.isfinite(out["value"]).all()
+    # bare ground (respiration alone) after the harvest, not the canopy's uptake
+    assert abs(np.mean(out["value"].to_numpy()[between] - truth[between])) < 1.0
+    crossed = out.attrs["events_crossed"]
+    assert len(crossed) == 1
+    start, stop, first, last, count = crossed[0]
+    assert (start, stop) == (breaks[0], len(index))
+    assert (index[first], index[last], count) == (index[between][0], index[between][-1],
+                                                  between.sum())
+    notes = crossed_event_notes(index, events, crossed)
+    assert len(notes) == 1 and f"{between.sum()} NEE records" in notes[0]
+    across = notes[0].split("across")[1]
+    assert events[1] in across and events[2] in across and events[0] not in across
 
 
 def test_an_event_at_the_records_start_is_not_called_outside_it():

@@ -919,6 +919,10 @@ def test_format_check_text(tmp_path):
     table_lines = [line for line in text.splitlines() if line.startswith(("variable", "nee "))]
     assert len(table_lines) == 2
     assert table_lines[0].index("present") < table_lines[0].index("longest gap")
+    # known truth: the 4 stamps removed in a row are the longest gap, 4 records of 30 min
+    # = 0.083 d, and the header says the first number counts records (review25)
+    assert "longest gap [records]" in table_lines[0]
+    assert " 4 (0.1 d) " in table_lines[1]
     assert "problems found (1)" in text and "nee: 2 value(s) outside" in text
     assert text.endswith("\n")
 
@@ -1413,6 +1417,34 @@ def test_flag_accept_and_two_flag_columns(tmp_path):
     assert report.columns["nee_flag"] == "qc + qc_gas"
     with pytest.raises(ConfigError, match=r'\[input\] flag_accept = \["good"\]'):
         _read(path, columns=MAPPING | {"nee_flag": "qc"}, flag_accept=["good"])
+
+
+def test_the_summary_says_how_many_flagged_records_hold_an_nee_value(tmp_path):
+    """`fluxpart check` printed "25 record(s) rejected" by the site flag while its
+    screening table counted 17 site_flag records (the example site; review25): screening
+    counts a record by its first reason, and a flagged record without NEE is "missing".
+    The summary now says how many flagged records hold an NEE value, counted here with
+    pandas on the written file (a general-purpose library); the manifest's reader record
+    (to_dict) is unchanged."""
+    records = _records()
+    records["qc"] = np.where(np.arange(96) % 4 == 0, 2, 0)          # 24 flagged
+    flux = records["co2_flux"].to_numpy().copy()
+    flux[np.arange(96) % 8 == 0] = -9999                             # 12 of them lack NEE
+    records["co2_flux"] = flux
+    path = _write(tmp_path / "t.csv", records)
+    frame, report = _read(path, columns=MAPPING | {"nee_flag": "qc"})
+    written = pd.read_csv(path)
+    flagged = written["qc"] == 2
+    with_nee = int((flagged & (written["co2_flux"] != -9999)).sum())
+    assert report.flag_rejected == int(flagged.sum()) == 24
+    assert report.flag_rejected_with_nee == with_nee == 12
+    assert "24 record(s) rejected, 12 of them with an NEE value" in str(report)
+    assert "flag_rejected_with_nee" not in report.to_dict()
+    # where every flagged record holds NEE the line stays as it was
+    records["co2_flux"] = np.where(flux == -9999, 1.0, flux)
+    path = _write(tmp_path / "u.csv", records)
+    _, report = _read(path, columns=MAPPING | {"nee_flag": "qc"})
+    assert "24 record(s) rejected\n" in str(report) + "\n" and "of them" not in str(report)
 
 
 def test_a_missing_code_that_is_a_good_flag_value_keeps_the_flag(tmp_path):

@@ -218,6 +218,36 @@ def test_rg_above_potential_is_reported_as_clock_evidence(demo_frame):
     assert verdict.status == "shifted"
 
 
+@pytest.mark.parametrize("hours", [1.0, -1.0])
+def test_a_clock_an_hour_off_is_not_also_called_a_shaded_sensor(demo_frame, hours):
+    """Known-truth recovery (the invented demo year, unshaded, its site set an hour off):
+    the sun stands equally high at equal times before and after the true solar noon
+    (Iqbal 1983 (m)), not the noon of a wrong offset, so the shading check read the
+    shifted day as a sensor shaded in the morning or afternoon and told the user to move
+    it, beside the clock check's right fix (review25). Where the clock check finds the
+    shift, the shading finding is left to it; with the right offset and the afternoon's
+    direct beam blocked (Rg at 0.3 from 14:30 to 17:30), the sensor is still named."""
+    from fluxpart.preflight import Finding, defer_to_clock
+
+    site = demo.site()
+    wrong = Site(site.name, site.latitude, site.longitude, site.utc_offset + hours)
+    verdict, findings = check_record(demo_frame, wrong)
+    assert verdict.status == "shifted"
+    assert "input (rg shaded)" not in _stages(findings)
+    assert any(f.stage.startswith("screening (Rg above") for f in findings)
+    shaded = demo_frame.copy()
+    hour = shaded.index.hour + shaded.index.minute / 60
+    shaded.loc[(hour >= 14.5) & (hour < 17.5), "rg"] *= 0.3
+    verdict, findings = check_record(shaded, site)
+    assert verdict.status == "consistent" and "input (rg shaded)" in _stages(findings)
+    # only a shift of the stamps moves the noon the check is symmetric about
+    found = [Finding("input (rg shaded)", "shaded", False), Finding("x", "y", False)]
+    for status in (None, "consistent", "hemisphere", "latitude", "cannot_judge"):
+        assert defer_to_clock(found, status) == found
+    for status in ("shifted", "daylight_saving"):
+        assert defer_to_clock(found, status) == found[1:]
+
+
 def test_process_refuses_a_shifted_clock_unless_told_to_warn(demo_frame):
     """clock_check = "refuse" (default) stops with the fix; "warn" runs and records the
     shift in the provenance; "off" records that it was not checked."""

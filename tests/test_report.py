@@ -533,6 +533,68 @@ def test_columns_of_current_runs_are_shown(folder):
     assert "no daily 1-sigma" not in text
 
 
+def test_light_response_window_parameters_show_their_units(folder):
+    """The table of light-response windows that are not plainly accepted gives each
+    parameter's unit, as the other tables of the page do: the rectangular hyperbola of
+    Lasslop et al. (2010) (m), NEE = -alpha beta Rg / (alpha Rg + beta) + Rref f(T), with
+    Rg in W m-2 and fluxes in µmol m-2 s-1, makes alpha µmol J-1 and beta0 and Rref
+    µmol m-2 s-1, and its VPD limit exp(-k (VPD - 10 hPa)) makes k hPa-1. Before
+    review25 the headers had no unit (the table was drawn without the field metadata)."""
+    text = folder["text"]
+    table = re.search(r'<table id="daytime-windows"><thead>(.*?)</thead>', text).group(1)
+    headers = {name: html.unescape(unit) for name, unit in re.findall(
+        r'<th scope="col">([a-z0-9_]+)(?:<br><span class="unit">\[([^\]]*)\]</span>)?</th>',
+        table)}
+    assert headers["alpha"] == "µmol J-1"
+    assert headers["beta0"] == headers["rref"] == "µmol m-2 s-1"
+    assert headers["k"] == "hPa-1"
+    # the units agree with the ones the Parquet file stores for those columns
+    schema = pq.read_schema(folder["directory"] / "parameters_daytime.parquet")
+    stored = {f.name: (f.metadata or {}).get(b"unit", b"").decode() for f in schema}
+    assert stored["alpha"] == "umol J-1" and stored["k"] == "hPa-1"
+    # alpha, a light-use efficiency of 0.001-0.1, is not rounded to 0.00x
+    alphas = re.findall(r'<td data-column="alpha"[^>]*data-decimals="(\d)"', text)
+    assert alphas and set(alphas) == {"4"}
+    # the example panels of the light-response figure give the same units beside the values
+    written = read_written(folder["directory"])
+    drawing = figures.Drawing()
+    made = []
+    draw = drawing.figure
+    drawing.figure = lambda *args, **kwargs: made.append(draw(*args, **kwargs)) or made[-1]
+    with drawing.mpl.rc_context():
+        figures.figure_light_response(drawing, written)
+    boxes = [t.get_text() for axis in made[0].axes for t in axis.texts if "α =" in t.get_text()]
+    assert boxes
+    for box in boxes:
+        lines = dict(line.split(" = ") for line in box.splitlines())
+        assert lines["α"].endswith(" µmol J-1") and lines["k"].endswith(" hPa-1")
+        assert lines["β0"].endswith(" µmol m-2 s-1") and lines["Rref"].endswith(" µmol m-2 s-1")
+
+
+def test_the_provenance_table_reads_as_words_not_python(folder):
+    """The clock check and demo rows of the provenance table are plain words with the
+    values the manifest records (read back with the standard library's json), not a
+    Python dict's repr ({'status': ..., 'problems': [], ... None}), as they were before
+    review25."""
+    import json
+
+    manifest = json.loads((folder["directory"] / "manifest.json").read_text())
+    table = re.search(r'<table id="provenance">(.*?)</table>', folder["text"]).group(1)
+    rows = {html.unescape(name): html.unescape(value) for name, value in
+            re.findall(r'<th scope="row">([^<]*)</th><td>([^<]*)</td>', table)}
+    clock = manifest["provenance"]["clock"]
+    shown = rows["clock check"]
+    assert "{" not in shown and "'" not in shown and "None" not in shown
+    assert shown.startswith(figures.clock_sentence(manifest))
+    assert f"shift minutes: {clock['shift_minutes']}" in shown
+    assert f"status: {clock['status']}" in shown
+    assert f"months used: {clock['months_used']}" in shown
+    demo_row = rows["demo"]
+    assert "{" not in demo_row and demo_row.endswith("seed: 0; variant: c3")
+    assert report._plain({"problems": ["a, b", "c"], "flag": True, "none": None}) == \
+        "problems: a, b / c; flag: yes; none: none"
+
+
 def test_the_clock_check_reads_as_a_sentence():
     """The run's clock verdict (status, shift, spread, first problem) in plain words."""
     manifest = {"provenance": {"clock": {
@@ -1123,6 +1185,38 @@ def test_methods_name_the_fill_estimate_the_result_was_made_with():
              for estimate in ("donor_mean", "local_linear")}
     truth = -8.0 + 2.0 * 2.0
     assert abs(fills["local_linear"] - truth) < 0.2 * abs(fills["donor_mean"] - truth)
+
+
+def test_methods_name_the_respiration_form_and_temperature_the_result_used(folder):
+    """The methods said "Nighttime partitioning: Lloyd–Taylor respiration" alone, while
+    a default run's central nighttime Reco is the BIC-weighted average of Lloyd–Taylor
+    and a constant Q10 (respiration_form = "average", since 0.10.0) and its temperature
+    chosen by BIC (review25). Now they say so where the result's config does, citing
+    Bayesian model averaging (Hoeting et al. 1999) and the criterion (Schwarz 1978);
+    a result with Lloyd–Taylor alone, or written before 0.10.0, is not told it averaged.
+    The weight the item points to is in the manifest, between 0 and 1 (a probability)."""
+    import json
+
+    def night_item(config):
+        listed, cited = report._methods(config, False)
+        item = next(i for i in listed.split("<li>") if i.startswith("Nighttime"))
+        return html.unescape(item), cited
+
+    item, cited = night_item({"respiration_form": "average", "respiration_driver": "auto"})
+    assert "constant Q10" in item and "Hoeting et al. 1999" in item
+    assert "Schwarz 1978" in item and {"hoeting1999", "schwarz1978"} <= set(cited)
+    item, cited = night_item({"respiration_form": "lloyd_taylor", "respiration_driver": "tsoil"})
+    assert "Q10" not in item and "hoeting1999" not in cited and "soil temperature" in item
+    item, cited = night_item({})                          # before 0.5.0 / 0.10.0
+    assert "Q10" not in item and "BIC" not in item and "Bayesian" not in item
+    # the page of the default run, with every reference it cites in its list
+    text = html.unescape(folder["text"])
+    assert "The central nighttime Reco is the average" in text
+    assert "Statistical Science 14:382–417" in text and "Annals of Statistics 6:461–464" in text
+    manifest = json.loads((folder["directory"] / "manifest.json").read_text())
+    form = manifest["provenance"]["respiration_form"]
+    weights = [v for k, v in form.items() if "weight" in k and isinstance(v, (int, float))]
+    assert weights and all(0.0 <= w <= 1.0 for w in weights)
 
 
 def test_a_budget_year_of_one_calendar_years_records_shows_that_years_range():

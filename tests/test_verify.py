@@ -80,6 +80,18 @@ def test_quiet_verify_prints_only_the_verdict_with_the_same_exit(bundle, capsys)
     assert out.startswith("bit-identical") and out.count("\n") == 3
     assert out.splitlines()[1].startswith("result: seed 0; input tower.csv (sha256 ")
     assert out.splitlines()[2].startswith("Caution:") and "not a certified credit" in out
+    # the option's help and README's command block name all three lines it prints (they
+    # said "only the verdict and the caution" before review25)
+    import re
+
+    shown = subprocess.run([sys.executable, "-m", "fluxpart", "verify", "--help"],
+                           capture_output=True, text=True, check=True).stdout
+    help_text = " ".join(shown[shown.index("--quiet "):].split())
+    assert "verdict" in help_text and "result: line" in help_text and "caution" in help_text
+    readme = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
+    entry = " ".join(re.sub(r"#", " ", readme[readme.index("fluxpart verify DIR"):
+                                              readme.index("fluxpart diff   DIR_A")]).split())
+    assert "--quiet: verdict" in entry and "result: line and caution only" in entry
 
 
 def test_verify_names_which_result_the_folder_holds(bundle, tmp_path, capsys):
