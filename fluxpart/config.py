@@ -445,7 +445,7 @@ class Config:
         hours apart within an outage, an event near the record's end) is filled from the
         neighbouring piece, and warned about, rather than left unfilled (which would
         leave the year's NEE sum NaN). The partitionings' windows are cut at events
-        too (after 0.22.0, round events2): no nighttime E0 or Rref window and no
+        too (since 0.23.0): no nighttime E0 or Rref window and no
         daytime light-response window (nor the night windows of its E0) takes records
         from both sides of an event, and a record's Rref, or light-response curves,
         come from the windows of its own piece only (:mod:`fluxpart.partition.pieces`),

@@ -689,7 +689,7 @@ def metadata_differences(stored: Path, recomputed: Path) -> list[tuple[str, str,
     to every reader (``fluxpart.load`` hands them to the modeller).
 
     The ``PANDAS_ATTRS`` copy of the metadata for ``pandas.read_parquet``
-    (:data:`fluxpart.store.PANDAS_ATTRS_KEY`, written since round modeller23) is
+    (:data:`fluxpart.store.PANDAS_ATTRS_KEY`, written since 0.23.0) is
     compared where the stored file has it (an edited unit there is named like any
     other); a table written before it lacks the key, which is no difference: the
     key repeats the ``fluxpart`` metadata compared above.
@@ -709,7 +709,7 @@ def metadata_differences(stored: Path, recomputed: Path) -> list[tuple[str, str,
 
 def _lacks_pandas_copy(path: Path) -> bool:
     """Whether a stored table lacks the ``PANDAS_ATTRS`` metadata key (a table written
-    before round modeller23; :data:`fluxpart.store.PANDAS_ATTRS_KEY`)."""
+    before 0.23.0; :data:`fluxpart.store.PANDAS_ATTRS_KEY`)."""
     import pyarrow as pa
     import pyarrow.parquet as pq
 
