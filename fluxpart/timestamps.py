@@ -1499,12 +1499,14 @@ def budget_year_edges(index, interval_minutes: int, year_start: str = "01-01",
         add_before = add_after = before + after <= edge_days * per_day
     else:
         add_before, add_after = before <= edge_days * per_day, after <= edge_days * per_day
+    # the added stamps keep the records' place on the clock: starts off the grid of whole
+    # intervals (a logger on UTC at a site 5.75 h from it) stay off it
     if add_before and before > 0:
-        start = first_year["period_start"]
+        start = start - before * step
         notes.append(_edge_note(label.format(first_year["year"]), start, before, step,
                                 "start"))
     if add_after and after > 0:
-        end = last_year["period_end"] - step
+        end = end + after * step
         notes.append(_edge_note(label.format(last_year["year"]), end - (after - 1) * step,
                                 after, step, "end"))
     if not notes:
