@@ -35,8 +35,8 @@ import pandas as pd
 from .config import setting_text
 
 __all__ = ["column_place", "column_utc_offset", "half_interval_message",
-           "name_conflict_message", "paired_stamps_message", "parse_like", "stated_offset",
-           "stated_place", "text_conflict_message"]
+           "name_conflict_message", "paired_stamps_message", "parse_like",
+           "repeated_stamp_hint", "stated_offset", "stated_place", "text_conflict_message"]
 
 #: Words of a time column's name that say where its stamps sit in the interval (English,
 #: with the German words loggers of German-speaking networks write; common practice).
@@ -200,7 +200,9 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
     Parameters
     ----------
     statements : list of (str, str)
-        ``(where, text)``: where the text is (``"line 1 of 'a.csv'"``) and the text.
+        ``(where, text)``: where the text is (``"line 1 of 'a.csv'"``, or ``"the cell
+        under 'stamp' on line 2 of 'a.csv'"``, whose whole text is judged as a column
+        name is) and the text.
     time_marks, time_format, time_zone, utc_offset
         As in :func:`name_conflict_message`.
 
@@ -227,6 +229,8 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
         return None
     for where, text in statements:
         offset = stated_offset(text)
+        if offset is None and where.startswith("the cell under"):
+            offset = column_utc_offset(text)      # "yyyy-mm-dd hh:mm UTC" under the stamps
         if offset is not None and not np.isclose(offset, utc_offset):
             return (f"{where} ({text.strip()[:80]!r}) states stamps in {_hours(offset)}, "
                     f"but without [input] time_zone {_read_as(utc_offset, offset)} if the "
@@ -435,3 +439,48 @@ def half_interval_message(starts: pd.DatetimeIndex, interval_minutes: int,
             f"either the stamps mark {places}; or the logger's clock ran "
             f"{interval_minutes / 2:g} minutes off, and then move the stamps onto the grid "
             "in a copy of the file")
+
+
+def repeated_stamp_hint(stamps: pd.DatetimeIndex) -> str | None:
+    """The cause of stamps that repeat within one file with other values, where the
+    stamps tell it.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        One file's stamps in file order, some repeated.
+
+    Returns
+    -------
+    str or None
+        For hours that never pass 12 with a quarter or more of the stamps repeated: a
+        12-hour clock written without AM/PM. For one stamp written on two consecutive
+        lines, every other step one record: both readings, a logger that changed from
+        stamping interval ends to stamping starts there (every record after it one
+        record early) and a record written twice. Else None (the caller's hint).
+
+    References
+    ----------
+    Aubinet, Vesala and Papale (2012) (m): one stamp per interval, one step apart.
+    Python's ``strftime``: ``%I`` is the hour of a 12-hour clock, ``%p`` its AM/PM.
+    """
+    duplicated = stamps.duplicated(keep=False)
+    if len(stamps) >= 96 and stamps.hour.max() <= 12 and duplicated.mean() >= 0.25:
+        return ("the hours never pass 12 and the stamps repeat within their day: a 12-hour "
+                "clock written without AM/PM (a format of %I without %p), whose morning and "
+                "afternoon records cannot be told apart; export the stamps with AM/PM or in "
+                "24-hour form")
+    rows = np.flatnonzero(duplicated)
+    if len(rows) != 2 or rows[1] != rows[0] + 1 or len(stamps) < 4:
+        return None
+    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(minutes=1), dtype=float)
+    others = np.delete(steps, rows[0])
+    step = float(np.median(others))
+    if step <= 0 or np.mean(others == step) < 0.99:
+        return None
+    return (f"the stamp is written on two consecutive lines and every other stamp follows "
+            f"the one before by {step:g} minutes: either the logger changed there from "
+            "stamping each interval's end to stamping its start (a program or export "
+            "changed), so that every record from the second line on reads one record early "
+            "(then give those records the first part's convention in a copy), or it wrote "
+            "one record twice (then keep one of them in a copy)")

@@ -28,6 +28,7 @@ from .errors import (
     SpacingError,
     TimestampError,
 )
+from .stamp_places import repeated_stamp_hint
 
 __all__ = [
     "INTERVALS_MINUTES",
@@ -1007,13 +1008,16 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         rows = np.flatnonzero(stamps == stamps[first])
         listed = ", ".join(str(int(lines[r])) for r in rows[:5])
         hint = "keep one of them in a copy of the file"
+        told = repeated_stamp_hint(pd.DatetimeIndex(stamps))
         repeated = pd.DatetimeIndex(stamps[duplicated])
         same_day = repeated[repeated.normalize() == stamps[first].normalize()]
         # a daylight-saving repeat: one or two clock hours of one day in an autumn month
         if (time_zone is None and len(same_day.floor("h").unique()) <= 2
                 and stamps[first].month in (3, 4, 9, 10, 11)):
             hint = ("if the file is in civil time with daylight saving, set [input] "
-                    "time_zone = \"Area/City\"; otherwise " + hint)
+                    "time_zone = \"Area/City\"; otherwise " + (told or hint))
+        elif told:
+            hint = told
         elif (time_zone is None and len(repeated.unique()) >= 2
               and repeated.max() - repeated.min() <= pd.Timedelta(hours=1)):
             # the same pattern outside the months of daylight-saving changes: a clock set

@@ -176,6 +176,7 @@ def test_place_lines():
     (["Station: invented", "Time zone: UTC"], None, "line 2 of"),
     (["# tz = +02:00"], None, "line 1 of"),
     ([], "UTC", "the cell under 'stamp' on line 2 of"),
+    ([], "yyyy-mm-dd hh:mm UTC", "the cell under 'stamp' on line 2 of"),
 ])
 def test_a_clock_stated_in_the_file_other_than_read_is_refused(tmp_path, above, cell,
                                                                expected):
@@ -301,3 +302,39 @@ def test_a_month_file_stamped_at_the_other_end_names_it_not_the_overlap(tmp_path
     assert f"leaves stamp {hole} after its last record empty" in message
     assert "one record (30 minutes) early" in message
     assert "remove one copy" not in message
+
+
+# --------------------------------------------------------- repeated stamps in one file
+def test_a_switch_from_end_to_start_stamps_in_one_file_names_both_readings(tmp_path):
+    """A logger that changed from end to start stamps mid-file writes the stamp of the
+    change twice (the record ending there and the one starting there) and every later
+    record one step early. The refusal said "keep one of them in a copy", after which
+    half the file read 30 minutes early. Now both readings are named (invented known
+    truth: the records as written)."""
+    starts, records = _tower(periods=48 * 6)
+    ends = starts + pd.Timedelta(minutes=30)
+    stamps = ends.where(np.arange(len(ends)) < 144, starts)
+    _with_stamps(records, stamp=stamps).to_csv(tmp_path / "a.csv", index=False)
+    with pytest.raises(DuplicateTimestampError) as caught:
+        _read(tmp_path / "a.csv")
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    assert f"stamp '{ends[143]:%Y-%m-%d %H:%M}' occurs 2 times" in message
+    assert "(lines 145, 146)" in message
+    assert "from stamping each interval's end to stamping its start" in message
+    assert "or it wrote one record twice" in message
+
+
+def test_a_twelve_hour_clock_without_am_pm_is_named():
+    """Python's strftime: %I is the hour of a 12-hour clock (01..12) and %p its AM/PM;
+    stamps written with %I alone never pass 12 and repeat twice a day."""
+    starts = pd.date_range("2021-06-01 00:30", periods=48 * 3, freq="30min")
+    written = pd.to_datetime(starts.strftime("%Y-%m-%d %I:%M"), format=FORMAT)
+    assert written.hour.max() == 12
+    from fluxpart.stamp_places import repeated_stamp_hint
+    assert "12-hour clock written without AM/PM" in repeated_stamp_hint(written)
+    # a record written twice on consecutive lines of a regular file: both readings
+    twice = starts[:50].append(starts[49:50]).append(starts[50:])
+    assert "wrote one record twice" in repeated_stamp_hint(twice)
+    # two repeats, or an irregular file: no reading told
+    assert repeated_stamp_hint(twice.append(starts[10:11])) is None
