@@ -35,8 +35,8 @@ import pandas as pd
 from .config import setting_text
 
 __all__ = ["column_place", "column_utc_offset", "half_interval_message",
-           "name_conflict_message", "paired_stamps_message", "parse_like",
-           "repeated_stamp_hint", "stated_offset", "stated_place", "text_conflict_message"]
+           "date_only_repeats_hint", "name_conflict_message", "paired_stamps_message",
+           "parse_like", "repeated_stamp_hint", "stated_offset", "stated_place", "text_conflict_message"]
 
 #: Words of a time column's name that say where its stamps sit in the interval (English,
 #: with the German words loggers of German-speaking networks write; common practice).
@@ -439,6 +439,47 @@ def half_interval_message(starts: pd.DatetimeIndex, interval_minutes: int,
             f"either the stamps mark {places}; or the logger's clock ran "
             f"{interval_minutes / 2:g} minutes off, and then move the stamps onto the grid "
             "in a copy of the file")
+
+
+def date_only_repeats_hint(stamps: pd.DatetimeIndex, text: pd.Series) -> str | None:
+    """The cause where repeated stamps are each written once as a date alone.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        One file's stamps in file order, some repeated.
+    text : pandas.Series of str
+        The stamps as written, row by row.
+
+    Returns
+    -------
+    str or None
+        Where every repeated stamp is midnight and has one row written shorter than the
+        file's usual stamp (the date alone, "2021-06-02", read as 00:00), and there are
+        several such: daily summary lines among the records; else None.
+
+    References
+    ----------
+    Common practice: a logger writes its daily table into the file of its 30-minute
+    table, stamped with the date alone.
+    """
+    duplicated = np.asarray(stamps.duplicated(keep=False))
+    if duplicated.sum() < 4:
+        return None
+    repeated = stamps[duplicated]
+    if (repeated != repeated.normalize()).any():
+        return None
+    lengths = text.astype(str).str.strip().str.len().to_numpy()
+    usual = float(np.median(lengths))
+    short = duplicated & (lengths < usual - 2)
+    days = pd.DatetimeIndex(repeated).unique()
+    if short.sum() != len(days):
+        return None
+    first = int(np.flatnonzero(short)[0])
+    return (f"each repeated stamp is midnight, written once with its time and once as the "
+            f"date alone ({str(text.iloc[first]).strip()!r}), {len(days)} day(s): daily "
+            "summary lines among the records (a logger's day table written into the same "
+            "file)? Remove those lines in a copy of the file")
 
 
 def repeated_stamp_hint(stamps: pd.DatetimeIndex) -> str | None:

@@ -28,7 +28,7 @@ from .errors import (
     SpacingError,
     TimestampError,
 )
-from .stamp_places import repeated_stamp_hint
+from .stamp_places import date_only_repeats_hint, repeated_stamp_hint
 
 __all__ = [
     "INTERVALS_MINUTES",
@@ -1008,7 +1008,8 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         rows = np.flatnonzero(stamps == stamps[first])
         listed = ", ".join(str(int(lines[r])) for r in rows[:5])
         hint = "keep one of them in a copy of the file"
-        told = repeated_stamp_hint(pd.DatetimeIndex(stamps))
+        told = (date_only_repeats_hint(pd.DatetimeIndex(stamps), text)
+                or repeated_stamp_hint(pd.DatetimeIndex(stamps)))
         repeated = pd.DatetimeIndex(stamps[duplicated])
         same_day = repeated[repeated.normalize() == stamps[first].normalize()]
         # a daylight-saving repeat: one or two clock hours of one day in an autumn month

@@ -338,3 +338,24 @@ def test_a_twelve_hour_clock_without_am_pm_is_named():
     assert "wrote one record twice" in repeated_stamp_hint(twice)
     # two repeats, or an irregular file: no reading told
     assert repeated_stamp_hint(twice.append(starts[10:11])) is None
+
+
+def test_daily_summary_lines_stamped_with_the_date_alone_are_named(tmp_path):
+    """A logger's day table written into the file of its 30-minute table, each line
+    stamped with the date alone after the day's last record (common practice): read as
+    00:00 (the reader's date-alone rule), each collides with the midnight record and was
+    told "keep one of them"; now named as daily summary lines (invented known truth)."""
+    starts, records = _tower(periods=48 * 4)
+    lines = records.to_csv(index=False).splitlines()
+    out = [lines[0]]
+    for line in lines[1:]:
+        out.append(line)
+        if line[11:16] == "00:00":
+            out.append(line[:10] + ",1.0,0.3,200.0,15.0,8.0")
+    (tmp_path / "a.csv").write_text("\n".join(out) + "\n")
+    with pytest.raises(DuplicateTimestampError) as caught:
+        _read(tmp_path / "a.csv")
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    assert "written once with its time and once as the date alone ('2021-06-02')" in message
+    assert "4 day(s): daily summary lines among the records" in message
