@@ -319,7 +319,9 @@ def paired_stamps_message(stamps: pd.DatetimeIndex, others: dict, time_column: s
         The time column's stamps of one file, as parsed (local standard time).
     others : dict
         Unmapped column name -> its cells parsed under the same format
-        (``pandas.DatetimeIndex``, NaT where a cell does not parse), row by row.
+        (``pandas.DatetimeIndex``, NaT where a cell does not parse), row by row. A
+        column whose name states a clock (``"time_utc"``) holds the same stamps on
+        another clock and is passed over, as are all where the time column's does.
     time_column : str
         The time column's name.
     time_marks : {"start", "middle", "end"}
@@ -347,7 +349,11 @@ def paired_stamps_message(stamps: pd.DatetimeIndex, others: dict, time_column: s
     if not len(steps):
         return None
     minutes = float(np.median(steps))
+    if column_utc_offset(time_column) is not None:
+        return None
     for name, other in others.items():
+        if column_utc_offset(name) is not None:     # the same stamps on another clock
+            continue
         difference = np.asarray((other - stamps) / pd.Timedelta(minutes=1), dtype=float)
         valid = np.isfinite(difference)
         if valid.sum() < 0.99 * len(stamps):
@@ -362,7 +368,10 @@ def paired_stamps_message(stamps: pd.DatetimeIndex, others: dict, time_column: s
                         f"written, every record would sit {_apart(place, time_marks)} "
                         f"{'early' if _later(time_marks, place) else 'late'}: set time_marks"
                         f" = {setting_text(place)}, or map time_column = {name!r} with "
-                        f"time_marks = {setting_text(partner)}")
+                        f"time_marks = {setting_text(partner)}"
+                        + (f" (unless {name!r} holds the same stamps on a clock an hour "
+                           "apart: then rename it in a copy, naming its clock)"
+                           if minutes == 60 else ""))
     return None
 
 

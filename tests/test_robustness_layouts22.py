@@ -359,3 +359,24 @@ def test_daily_summary_lines_stamped_with_the_date_alone_are_named(tmp_path):
     assert len(message.splitlines()) == 1
     assert "written once with its time and once as the date alone ('2021-06-02')" in message
     assert "4 day(s): daily summary lines among the records" in message
+
+
+def test_a_second_stamp_column_on_another_clock_is_no_interval_end(tmp_path):
+    """Hourly records with local standard stamps and a second column of the same stamps
+    in UTC, an hour (one record) earlier at UTC+1 (common practice: exports write both
+    clocks): named for its clock, it is passed over, and the file reads as written
+    (invented known truth)."""
+    starts, records = _tower(periods=48 * 3)
+    hourly = records.iloc[::2].reset_index(drop=True)
+    local = pd.DatetimeIndex(starts[::2])
+    _with_stamps(hourly, stamp=local, stamp_utc=local - pd.Timedelta(hours=1)).to_csv(
+        tmp_path / "a.csv", index=False)
+    frame, _ = _read(tmp_path / "a.csv", time_marks="start")
+    pd.testing.assert_index_equal(frame.index, pd.DatetimeIndex(local, name="time"),
+                                  check_names=False)
+    # under a neutral name, the hour apart is offered as the other reading
+    _with_stamps(hourly, stamp=local, other=local - pd.Timedelta(hours=1)).to_csv(
+        tmp_path / "b.csv", index=False)
+    with pytest.raises(TimestampError, match="unless 'other' holds the same stamps on a "
+                                             "clock an hour apart"):
+        _read(tmp_path / "b.csv", time_marks="start")
