@@ -438,12 +438,13 @@ def half_interval_message(starts: pd.DatetimeIndex, interval_minutes: int,
     minute = offset[np.flatnonzero(half)[0]] % 60
     first = starts[np.flatnonzero(half)[0]]
     if time_marks == "middle":
-        places = 'the interval\'s start or end: set time_marks = "start" or "end" (which one, ' \
-                 "the file's documentation or the clock check of `fluxpart check` tells)"
+        places = ('the interval\'s start or end: set time_marks = "start" or "end" (which '
+                  "one, the file's documentation tells, or try each: `fluxpart check` then "
+                  "judges the clock)")
     else:
         places = 'the middle of the interval: set time_marks = "middle"'
-    return (f"with time_marks = {setting_text(time_marks)} every interval starts at minute "
-            f"{minute:g} of the hour ({int(half.sum())} of {len(starts)} records, the first "
+    return (f"[input] time_marks = {setting_text(time_marks)}: every interval then starts at "
+            f"minute {minute:g} of the hour ({int(half.sum())} of {len(starts)} records, the first "
             f"at {first}), half a {interval_minutes}-minute interval off the clock grid: "
             f"either the stamps mark {places}; or the logger's clock ran "
             f"{interval_minutes / 2:g} minutes off, and then move the stamps onto the grid "

@@ -230,7 +230,7 @@ def test_middle_stamps_read_as_ends_are_refused_naming_both_readings(tmp_path):
     with pytest.raises(TimestampError) as caught:
         _read(tmp_path / "a.csv")
     message = str(caught.value)
-    assert 'every interval starts at minute 45 of the hour' in message
+    assert '[input] time_marks = "end": every interval then starts at minute 45' in message
     assert 'set time_marks = "middle"' in message and "15 minutes off" in message
     frame, _ = _read(tmp_path / "a.csv", time_marks="middle")
     pd.testing.assert_index_equal(frame.index, pd.DatetimeIndex(starts, name="time"))
