@@ -61,6 +61,13 @@ from .errors import (
     UnitError,
 )
 from .site import Site
+from .stamp_places import (
+    half_interval_message,
+    name_conflict_message,
+    paired_stamps_message,
+    parse_like,
+    text_conflict_message,
+)
 from .timestamps import (
     INTERVALS_MINUTES,
     check_isolated_stretch,
@@ -757,6 +764,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         if site is None:
             raise ConfigError("[input] time_zone needs the site (its [site] utc_offset)")
         check_time_zone(time_zone, utc_offset)
+    named = name_conflict_message(time_columns, time_marks, time_format, time_zone, utc_offset)
+    if named:
+        raise ConfigError(named)
 
     warnings: list[str] = []
     if flag_columns and exempted:
@@ -774,7 +784,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               encoding=encoding, rows_before_header=rows_before_header,
                               rows_after_header=rows_after_header, time_zone=time_zone,
                               utc_offset=utc_offset, warnings=warnings,
-                              may_lack=len(paths) > 1, flag_missing=flag_missing)
+                              may_lack=len(paths) > 1, flag_missing=flag_missing,
+                              time_marks=time_marks)
         except _EmptyFileError as error:
             # one of several files without records (a logger file opened at a power cut):
             # it holds nothing to read, so the others are read and it is named
@@ -836,6 +847,16 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     shift_minutes = {"start": 0.0, "middle": interval_minutes / 2,
                      "end": float(interval_minutes)}[time_marks]
     starts = pd.DatetimeIndex(stamps) - pd.Timedelta(minutes=shift_minutes)
+    # stamps converted from another clock to a standard time that is not a whole number
+    # of intervals from it (5.75 h from UTC) fall off the grid by right
+    converted_clock = time_zone is not None or any(
+        part["conversions"]["utc_offset"] or part["conversions"].get("utc_zone")
+        for part in parts)
+    fractional = utc_offset is not None and round(utc_offset * 60) % interval_minutes != 0
+    if not (converted_clock and fractional):
+        half = half_interval_message(starts, interval_minutes, time_marks)
+        if half:
+            raise TimestampError(half)
     alignment = clock_alignment_warning(starts, interval_minutes, time_marks)
     if alignment:
         warnings.append(alignment)
@@ -2380,7 +2401,8 @@ def _flag_key(column: str) -> str:
 
 def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_format, missing,
                delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
-               utc_offset, warnings, may_lack=False, flag_missing=None) -> dict:
+               utc_offset, warnings, may_lack=False, flag_missing=None,
+               time_marks=None) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column.
 
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
@@ -2401,6 +2423,13 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)
+    if time_marks is not None:
+        _refuse_stated_otherwise(text, header, time_columns, delimiter, rows_before_header,
+                                 rows_after_header, time_marks, time_format, time_zone,
+                                 utc_offset, source)
+    if time_marks is not None and len(time_columns) == 1:
+        _refuse_paired_stamps(raw, stamp_text, time_columns[0], time_format, mapping,
+                              flag_columns, time_marks, source)
     if rows_after_header:
         _refuse_skipped_record(path, text, header, time_columns, time_format, delimiter,
                                rows_before_header, rows_after_header, utc_offset, time_zone)
@@ -2453,6 +2482,52 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                            if parsed.rounded_to_minute else {}),
                         **({"date_only": parsed.date_only} if parsed.date_only else {})},
     }
+
+
+def _refuse_stated_otherwise(text: str, header: list, time_columns: tuple, delimiter: str,
+                             rows_before_header: int, rows_after_header: int,
+                             time_marks: str, time_format: str, time_zone, utc_offset,
+                             source: str) -> None:
+    """Refuse a file whose lines above the header, or whose cells under the time column's
+    name, state another place in the interval or another clock than the settings read
+    (see :func:`fluxpart.stamp_places.text_conflict_message`)."""
+    if not rows_before_header and not rows_after_header:
+        return
+    statements = [(f"line {number} of {source!r}", line) for number, line in
+                  enumerate(text.splitlines()[:rows_before_header], start=1)]
+    cells = _header_rows(text, header, {column: column for column in time_columns},
+                         delimiter, rows_before_header, rows_after_header)
+    for column, found in cells.values():
+        statements += [(f"the cell under {column!r} on line {rows_before_header + 2 + k} of "
+                        f"{source!r}", cell) for k, cell in enumerate(found) if cell]
+    message = text_conflict_message(statements, time_marks, time_format, time_zone,
+                                    utc_offset)
+    if message:
+        raise TimestampError(message)
+
+
+def _refuse_paired_stamps(raw: pd.DataFrame, stamp_text: pd.Series, time_column: str,
+                          time_format: str, mapping: dict, flag_columns, time_marks: str,
+                          source: str) -> None:
+    """Refuse a file whose unmapped column holds the other end of every interval where
+    ``time_marks`` reads the time column at the wrong end (see
+    :func:`fluxpart.stamp_places.paired_stamps_message`)."""
+    used = {time_column, *mapping.values(), *flag_columns}
+    others = {}
+    for column in raw.columns:
+        if column in used or not isinstance(column, str):
+            continue
+        parsed = parse_like(raw[column], time_format)
+        if parsed is not None:
+            others[column] = parsed
+    if not others:
+        return
+    own = parse_like(stamp_text, time_format)
+    if own is None:
+        return
+    message = paired_stamps_message(own, others, time_column, time_marks, source)
+    if message:
+        raise TimestampError(message)
 
 
 def _header_rows(text: str, header: list, read: dict, delimiter: str,
@@ -2917,6 +2992,38 @@ def _shifted_overlap(parts: list, source_a: str, source_b: str) -> str:
     return ""
 
 
+def _boundary_shift(parts: list, stamp: pd.Timestamp) -> str:
+    """The fix where two consecutive files meet in one stamp (the last of one, the first
+    of the other) and one of them leaves the record after (or before) it empty: that
+    file's stamps sit one record early (late) against its neighbours (a file stamped at
+    the other end of the interval), else ``""``. Known truth: month files of one
+    logger, one of them written with start stamps (tests/test_robustness_layouts22.py)."""
+    present = set()
+    for part in parts:
+        present.update(pd.DatetimeIndex(part["stamps"]))
+    for part in parts:
+        own = pd.DatetimeIndex(part["stamps"])
+        if len(own) < 3:
+            continue
+        step = pd.Timedelta((own[1:] - own[:-1]).median())
+        if own[0] == stamp and own[-1] + step not in present and \
+                own[-1] + 2 * step in present:
+            hole, direction, gap = own[-1] + step, "early", "after its last"
+        elif own[-1] == stamp and own[0] - step not in present and \
+                own[0] - 2 * step in present:
+            hole, direction, gap = own[0] - step, "late", "before its first"
+        else:
+            continue
+        minutes = step / pd.Timedelta(minutes=1)
+        return (f"{part['source']!r} meets its neighbour in this one stamp and leaves stamp "
+                f"{hole} {gap} record empty, so its stamps sit one record ({minutes:g} "
+                f"minutes) {direction} against the other files': it marks the other end "
+                "of the interval (a logger program or export changed), or the other files "
+                "do; give the files one convention in a copy (the one [input] time_marks "
+                "names) rather than remove the stamp")
+    return ""
+
+
 def _combine(parts: list) -> dict:
     """Join the files' rows in time order; merge identical rows, refuse conflicting ones."""
     names = list(parts[0]["values"])
@@ -2965,7 +3072,8 @@ def _combine(parts: list) -> dict:
                        f"{', '.join(differing)} in one of them only (in a copy), or rename "
                        "them in the other")
             if sources[a] != sources[b]:
-                fix = _shifted_overlap(parts, sources[a], sources[b]) or fix
+                fix = (_shifted_overlap(parts, sources[a], sources[b])
+                       or _boundary_shift(parts, pd.Timestamp(stamps[a])) or fix)
             raise DuplicateTimestampError(
                 f"overlapping files disagree: stamp {pd.Timestamp(stamps[a])} is on line "
                 f"{int(lines[a])} of {sources[a]!r} and on line {int(lines[b])} of "

@@ -28,6 +28,7 @@ from .errors import (
     SpacingError,
     TimestampError,
 )
+from .stamp_places import date_only_repeats_hint, repeated_stamp_hint
 
 __all__ = [
     "INTERVALS_MINUTES",
@@ -1007,13 +1008,17 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         rows = np.flatnonzero(stamps == stamps[first])
         listed = ", ".join(str(int(lines[r])) for r in rows[:5])
         hint = "keep one of them in a copy of the file"
+        told = (date_only_repeats_hint(pd.DatetimeIndex(stamps), text)
+                or repeated_stamp_hint(pd.DatetimeIndex(stamps)))
         repeated = pd.DatetimeIndex(stamps[duplicated])
         same_day = repeated[repeated.normalize() == stamps[first].normalize()]
         # a daylight-saving repeat: one or two clock hours of one day in an autumn month
         if (time_zone is None and len(same_day.floor("h").unique()) <= 2
                 and stamps[first].month in (3, 4, 9, 10, 11)):
             hint = ("if the file is in civil time with daylight saving, set [input] "
-                    "time_zone = \"Area/City\"; otherwise " + hint)
+                    "time_zone = \"Area/City\"; otherwise " + (told or hint))
+        elif told:
+            hint = told
         elif (time_zone is None and len(repeated.unique()) >= 2
               and repeated.max() - repeated.min() <= pd.Timedelta(hours=1)):
             # the same pattern outside the months of daylight-saving changes: a clock set
@@ -1499,12 +1504,14 @@ def budget_year_edges(index, interval_minutes: int, year_start: str = "01-01",
         add_before = add_after = before + after <= edge_days * per_day
     else:
         add_before, add_after = before <= edge_days * per_day, after <= edge_days * per_day
+    # the added stamps keep the records' place on the clock: starts off the grid of whole
+    # intervals (a logger on UTC at a site 5.75 h from it) stay off it
     if add_before and before > 0:
-        start = first_year["period_start"]
+        start = start - before * step
         notes.append(_edge_note(label.format(first_year["year"]), start, before, step,
                                 "start"))
     if add_after and after > 0:
-        end = last_year["period_end"] - step
+        end = end + after * step
         notes.append(_edge_note(label.format(last_year["year"]), end - (after - 1) * step,
                                 after, step, "end"))
     if not notes:

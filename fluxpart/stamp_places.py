@@ -1,0 +1,537 @@
+"""Where the stamps sit in their interval and on which clock, as the file itself says it.
+
+``[input] time_marks`` (start, middle or end of the averaging interval) and the clock of
+the stamps (the site's local standard time, unless ``time_zone`` or a UTC offset in the
+stamps says otherwise) move every record: read at the wrong place, each record sits half
+or a whole interval early or late, the night mask and the light response follow, and the
+budget moves by several g C m-2 (an hour of UTC read as local time moves it further). The
+values rarely tell. But a file often says it: the time column is named for its place in
+the interval ("period_start", "TimeEnd") or for its clock ("timestamp_utc"); a file
+writes both the start and the end stamp of each record; middle stamps fall half an
+interval off the clock grid. Where what the file says and what the settings say differ,
+two readings are possible and the reader refuses, naming both, instead of guessing.
+
+Pure functions; each returns a message (one line) or None.
+
+References
+----------
+ISO 8601-1:2019. Date and time -- Representations for information interchange -- Part 1:
+Basic rules. International Organization for Standardization (UTC written "Z" or as an
+offset, "+01:00") (m).
+
+Aubinet, M., Vesala, T. and Papale, D. (eds.) (2012). Eddy Covariance: A Practical Guide
+to Measurement and Data Analysis. Springer (fluxes are averages over intervals of 30 or 60
+minutes, each labelled with one time stamp) (m).
+"""
+
+from __future__ import annotations
+
+import re
+from datetime import datetime
+
+import numpy as np
+import pandas as pd
+
+from .config import setting_text
+
+__all__ = ["column_place", "column_utc_offset", "half_interval_message",
+           "date_only_repeats_hint", "name_conflict_message", "paired_stamps_message",
+           "parse_like", "repeated_stamp_hint", "stated_offset", "stated_place", "text_conflict_message"]
+
+#: Words of a time column's name that say where its stamps sit in the interval (English,
+#: with the German words loggers of German-speaking networks write; common practice).
+_PLACE_WORDS = {
+    "start": {"start", "starts", "starting", "begin", "begins", "beginning", "anfang",
+              "beginn"},
+    "middle": {"mid", "middle", "midpoint", "centre", "center", "mitte"},
+    "end": {"end", "ends", "ending", "stop", "finish", "ende"},
+}
+#: Words a place word is written together with in one token ("endtime", "timestart")
+_TIME_WORDS = ("timestamp", "datetime", "stamp", "time", "date", "ts")
+_UTC = re.compile(r"(?<![a-z])(utc|gmt)(?:([+-])(\d{1,2})(?::?(\d{2}))?)?(?![a-z0-9])")
+
+
+def _tokens(name: str) -> list[str]:
+    """Lower-case words of a column name, split at case changes, digits and punctuation."""
+    spaced = re.sub(r"([A-Z]+)([A-Z][a-z])", r"\1 \2", name)
+    spaced = re.sub(r"([a-z])([A-Z])", r"\1 \2", spaced)
+    return re.findall(r"[a-z]+|\d+", spaced.lower())
+
+
+def column_place(name: str) -> str | None:
+    """The place in the interval a time column's name states.
+
+    Parameters
+    ----------
+    name : str
+        Column name, e.g. ``"period_start"``, ``"TimeEnd"``, ``"t_begin"``.
+
+    Returns
+    -------
+    str or None
+        ``"start"``, ``"middle"`` or ``"end"`` where the name's words say exactly one of
+        them (alone or written with a time word: ``"endtime"``), else None.
+
+    References
+    ----------
+    Common practice: exports that write the interval's two stamps name them for its
+    start and its end.
+    """
+    found = set()
+    for token in _tokens(name):
+        for place, words in _PLACE_WORDS.items():
+            if token in words or any(token in (word + time, time + word)
+                                     for word in words for time in _TIME_WORDS):
+                found.add(place)
+    return found.pop() if len(found) == 1 else None
+
+
+def column_utc_offset(name: str) -> float | None:
+    """The UTC offset a time column's name states [hours], or None.
+
+    Parameters
+    ----------
+    name : str
+        Column name, e.g. ``"timestamp_utc"`` (0), ``"Time (UTC+1)"`` (1),
+        ``"DateTimeGMT"`` (0).
+
+    Returns
+    -------
+    float or None
+        The offset [h] of the clock the name gives: ``UTC`` or ``GMT`` alone is 0, with
+        a signed offset (``UTC+1``, ``UTC-05:00``, ``GMT+0530``) that offset; None where
+        the name states no clock.
+
+    References
+    ----------
+    ISO 8601-1:2019 (offsets from UTC as ``±hh``, ``±hhmm``, ``±hh:mm``) (m).
+    """
+    spaced = re.sub(r"([A-Z]+)([A-Z][a-z])", r"\1 \2", name)
+    spaced = re.sub(r"([a-z])([A-Z])", r"\1 \2", spaced).lower().replace("\u2212", "-")
+    spaced = re.sub(r"\s*([+-])\s*", r"\1", spaced)
+    found = {(m.group(2) or "", m.group(3) or "0", m.group(4) or "0")
+             for m in _UTC.finditer(spaced)}
+    if len(found) != 1:
+        return None
+    sign, hours, minutes = found.pop()
+    offset = int(hours) + int(minutes) / 60
+    return -offset if sign == "-" else float(offset)
+
+
+def _hours(offset: float) -> str:
+    return f"UTC{offset:+g}" if offset else "UTC"
+
+
+_STATED_PLACE = re.compile(
+    r"\b(start|beginning|begin|end|middle|centre|center|mid-?point)\s+of\s+(?:the\s+|each\s+)?"
+    r"(?:averaging\s+|measurement\s+|sampling\s+|logging\s+|record(?:ing)?\s+)?"
+    r"(?:interval|period|window)")
+_ZONE_KEY = re.compile(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt[\s_-]*offset)"
+                       r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*([^,;]*)")
+_IN_UTC = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?)\b[^.;]{0,24}?"
+                     r"\bin\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+_BARE_OFFSET = re.compile(r"^([+-])(\d{1,2})(?::?(\d{2}))?$")
+
+
+def stated_place(text: str) -> str | None:
+    """The place in the interval a line of text states ("end of the averaging period").
+
+    Parameters
+    ----------
+    text : str
+        A line above the header, or a cell under the time column's name.
+
+    Returns
+    -------
+    str or None
+        ``"start"``, ``"middle"`` or ``"end"`` where the text states exactly one, else None.
+
+    References
+    ----------
+    Common practice: logger and export headers state the place of the stamp in words.
+    """
+    places = {"beginning": "start", "begin": "start", "centre": "middle",
+              "center": "middle", "midpoint": "middle", "mid-point": "middle"}
+    found = {places.get(m.group(1), m.group(1)) for m in _STATED_PLACE.finditer(text.lower())}
+    return found.pop() if len(found) == 1 else None
+
+
+def stated_offset(text: str) -> float | None:
+    """The UTC offset a line of text states for the stamps [hours], or None.
+
+    Parameters
+    ----------
+    text : str
+        A line above the header ("Time zone: UTC+1", "timezone = +02:00", "times in
+        UTC"), or a cell under the time column's name ("UTC", "UTC+1").
+
+    Returns
+    -------
+    float or None
+        The offset [h]; None where the text states none or several.
+
+    References
+    ----------
+    ISO 8601-1:2019 (offsets from UTC as ``±hh``, ``±hhmm``, ``±hh:mm``) (m).
+    """
+    lowered = text.lower().replace("\u2212", "-").strip().strip('"').strip()
+    key = _ZONE_KEY.search(lowered)
+    if key:
+        value = key.group(1).strip().strip('"\'').strip()
+        bare = _BARE_OFFSET.match(value.replace(" ", ""))
+        if bare:
+            sign, hours, minutes = bare.groups()
+            offset = int(hours) + int(minutes or 0) / 60
+            return -offset if sign == "-" else float(offset)
+        hours = re.fullmatch(r"[+-]?\d{1,2}(?:\.\d+)?", value.replace(" ", ""))
+        if hours and abs(float(hours.group(0))) <= 14:      # "UTC offset: 1" (hours)
+            return float(hours.group(0))
+        return column_utc_offset(value)
+    inside = _IN_UTC.search(lowered)
+    if inside:
+        return column_utc_offset(inside.group(1) + (inside.group(2) or "").replace(" ", ""))
+    return column_utc_offset(lowered) if len(lowered) <= 12 else None
+
+
+def text_conflict_message(statements: list, time_marks: str, time_format: str,
+                          time_zone: str | None, utc_offset: float | None) -> str | None:
+    """The refusal where a line of the file states another place or clock than the settings.
+
+    Parameters
+    ----------
+    statements : list of (str, str)
+        ``(where, text)``: where the text is (``"line 1 of 'a.csv'"``, or ``"the cell
+        under 'stamp' on line 2 of 'a.csv'"``, whose whole text is judged as a column
+        name is) and the text.
+    time_marks, time_format, time_zone, utc_offset
+        As in :func:`name_conflict_message`.
+
+    Returns
+    -------
+    str or None
+        One line naming the line, what it says, what the settings read and the
+        settings of both readings; None where they agree or nothing is stated.
+
+    References
+    ----------
+    Aubinet, Vesala and Papale (2012) (m); ISO 8601-1:2019 (m).
+    """
+    for where, text in statements:
+        place = stated_place(text)
+        if place is not None and place != time_marks:
+            return (f"{where} ({text.strip()[:80]!r}) states stamps at the interval's {place}"
+                    f", but time_marks = {setting_text(time_marks)} reads them as its "
+                    f"{time_marks}s: the two readings place every record "
+                    f"{_apart(place, time_marks)} apart; set time_marks = "
+                    f"{setting_text(place)} if the file is right, or correct that line in "
+                    "a copy of the file if the setting is")
+    if _labelled(time_format) or time_zone is not None or utc_offset is None:
+        return None
+    for where, text in statements:
+        offset = stated_offset(text)
+        if offset is None and where.startswith("the cell under"):
+            offset = column_utc_offset(text)      # "yyyy-mm-dd hh:mm UTC" under the stamps
+        if offset is not None and not np.isclose(offset, utc_offset):
+            return (f"{where} ({text.strip()[:80]!r}) states stamps in {_hours(offset)}, "
+                    f"but without [input] time_zone {_read_as(utc_offset, offset)} if the "
+                    "file is right, or correct that line in a copy of the file if the "
+                    "stamps are in local standard time")
+    return None
+
+
+def _labelled(time_format: str) -> bool:
+    """True where the format reads each stamp's own UTC offset or zone label."""
+    return (time_format == "ISO8601" or "%z" in time_format or "%Z" in time_format
+            or time_format.rstrip().endswith("Z"))
+
+
+def _read_as(utc_offset: float, offset: float) -> str:
+    fix = 'time_zone = "UTC"' if offset == 0 else f"[site] utc_offset = {offset:g}"
+    return (f"they are read as the site's local standard time ({_hours(utc_offset)}, [site] "
+            f"utc_offset = {utc_offset:g}): the two readings place every record "
+            f"{abs(utc_offset - offset):g} hour(s) apart; set {fix}")
+
+
+def name_conflict_message(time_columns: tuple, time_marks: str, time_format: str,
+                          time_zone: str | None, utc_offset: float | None) -> str | None:
+    """The refusal where a time column's name says another place or clock than the settings.
+
+    Parameters
+    ----------
+    time_columns : tuple of str
+        ``[input] time_column`` (one name, or the date and time columns).
+    time_marks : {"start", "middle", "end"}
+        ``[input] time_marks``.
+    time_format : str
+        ``[input] time_format``; a format that reads a UTC offset or zone label
+        (``%z``, ``%Z``, ``"ISO8601"``, a literal ``Z``) takes the clock from the stamps,
+        so only the place is judged.
+    time_zone : str or None
+        ``[input] time_zone``; where set, the clock is the user's explicit choice.
+    utc_offset : float or None
+        ``[site] utc_offset`` [h].
+
+    Returns
+    -------
+    str or None
+        One line naming the column, what its name says, what the settings read and the
+        two settings that fit the two readings; None where they agree or the name says
+        nothing.
+
+    References
+    ----------
+    Aubinet, Vesala and Papale (2012) (m): one stamp per averaging interval, its place
+    in the interval a convention of the logger or export.
+    """
+    for column in time_columns:
+        place = column_place(column)
+        if place is not None and place != time_marks:
+            return (f"[input] time_column {column!r} is named for the interval's {place}, but "
+                    f"time_marks = {setting_text(time_marks)} reads its stamps as the "
+                    f"interval's {time_marks}s: the two readings place every record "
+                    f"{_apart(place, time_marks)} apart; set time_marks = "
+                    f"{setting_text(place)} if the name is right, or rename the column in a "
+                    "copy of the file if the setting is")
+    if _labelled(time_format) or time_zone is not None or utc_offset is None:
+        return None
+    for column in time_columns:
+        offset = column_utc_offset(column)
+        if offset is not None and not np.isclose(offset, utc_offset):
+            return (f"[input] time_column {column!r} is named for stamps in "
+                    f"{_hours(offset)}, but without [input] time_zone "
+                    f"{_read_as(utc_offset, offset)} if the name is right, or rename the "
+                    "column in a copy of the file if the stamps are in local standard time")
+    return None
+
+
+def _apart(one: str, other: str) -> str:
+    steps = {"start": 0, "middle": 1, "end": 2}
+    return "an interval" if abs(steps[one] - steps[other]) == 2 else "half an interval"
+
+
+def paired_stamps_message(stamps: pd.DatetimeIndex, others: dict, time_column: str,
+                          time_marks: str, source: str) -> str | None:
+    """The refusal where another column holds every stamp one interval away.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        The time column's stamps of one file, as parsed (local standard time).
+    others : dict
+        Unmapped column name -> its cells parsed under the same format
+        (``pandas.DatetimeIndex``, NaT where a cell does not parse), row by row. A
+        column whose name states a clock (``"time_utc"``) holds the same stamps on
+        another clock and is passed over, as are all where the time column's does.
+    time_column : str
+        The time column's name.
+    time_marks : {"start", "middle", "end"}
+        ``[input] time_marks``.
+    source : str
+        The file (for the message).
+
+    Returns
+    -------
+    str or None
+        Where 99 % or more of the rows of another column lie exactly one record step
+        later (the time column holds the starts, the other the ends) or earlier (the
+        time column holds the ends) and `time_marks` says otherwise: one line naming
+        both columns and both settings that read them right; else None.
+
+    References
+    ----------
+    Aubinet, Vesala and Papale (2012) (m): an averaging interval runs from its start
+    stamp to its end stamp, one record step apart.
+    """
+    if len(stamps) < 3:
+        return None
+    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(minutes=1), dtype=float)
+    steps = steps[steps > 0]
+    if not len(steps):
+        return None
+    minutes = float(np.median(steps))
+    if column_utc_offset(time_column) is not None:
+        return None
+    for name, other in others.items():
+        if column_utc_offset(name) is not None:     # the same stamps on another clock
+            continue
+        difference = np.asarray((other - stamps) / pd.Timedelta(minutes=1), dtype=float)
+        valid = np.isfinite(difference)
+        if valid.sum() < 0.99 * len(stamps):
+            continue
+        for sign, place, partner in ((1, "start", "end"), (-1, "end", "start")):
+            if np.mean(difference[valid] == sign * minutes) >= 0.99 and time_marks != place:
+                return (f"[input] time_column {time_column!r} with time_marks = "
+                        f"{setting_text(time_marks)}: column {name!r} of {source!r} holds "
+                        f"every stamp {minutes:g} minutes {'later' if sign > 0 else 'earlier'}"
+                        f" (first row {other[0]} beside {stamps[0]}), so {time_column!r} "
+                        f"marks the intervals' {place}s and {name!r} their {partner}s; as "
+                        f"written, every record would sit {_apart(place, time_marks)} "
+                        f"{'early' if _later(time_marks, place) else 'late'}: set time_marks"
+                        f" = {setting_text(place)}, or map time_column = {name!r} with "
+                        f"time_marks = {setting_text(partner)}"
+                        + (f" (unless {name!r} holds the same stamps on a clock an hour "
+                           "apart: then rename it in a copy, naming its clock)"
+                           if minutes == 60 else ""))
+    return None
+
+
+def _later(declared: str, actual: str) -> bool:
+    """True where reading `actual` stamps as `declared` moves the records earlier."""
+    steps = {"start": 0, "middle": 1, "end": 2}
+    return steps[declared] > steps[actual]
+
+
+def parse_like(cells: pd.Series, time_format: str) -> pd.DatetimeIndex | None:
+    """Cells parsed under `time_format` where the first non-empty one parses, else None
+    (a column of numbers or words is no stamp column)."""
+    text = cells.astype(str).str.strip()
+    filled = text[text != ""]
+    if not len(filled):
+        return None
+    try:
+        if time_format == "ISO8601":
+            pd.Timestamp(filled.iloc[0])
+        else:
+            datetime.strptime(filled.iloc[0], time_format)
+    except (ValueError, TypeError):
+        return None
+    parsed = pd.to_datetime(text, format=time_format if time_format != "ISO8601" else "ISO8601",
+                            errors="coerce")
+    if getattr(parsed.dt, "tz", None) is not None:
+        return None
+    return pd.DatetimeIndex(parsed)
+
+
+def half_interval_message(starts: pd.DatetimeIndex, interval_minutes: int,
+                          time_marks: str) -> str | None:
+    """The refusal where every interval start lies half an interval off the clock grid.
+
+    Parameters
+    ----------
+    starts : pandas.DatetimeIndex
+        Interval starts after `time_marks` was applied.
+    interval_minutes : int
+        Record interval [minutes].
+    time_marks : {"start", "middle", "end"}
+        ``[input] time_marks``.
+
+    Returns
+    -------
+    str or None
+        Where 99 % or more of the starts lie exactly half an interval off the grid of
+        whole intervals (midnight, :30, ...): the stamps mark another place in the
+        interval than `time_marks` says (middle stamps read as starts or ends, or start
+        or end stamps read as middles), or a clock runs half an interval off; one line
+        naming both readings. Else None (a few records off are warned elsewhere).
+
+    References
+    ----------
+    Aubinet, Vesala and Papale (2012) (m): intervals of 30 or 60 minutes begin on the
+    hour and half hour of the logger's clock.
+    """
+    if len(starts) == 0:
+        return None
+    offset = np.asarray((starts - starts.normalize()) / pd.Timedelta(minutes=1), dtype=float)
+    half = np.mod(offset, interval_minutes) == interval_minutes / 2
+    if half.mean() < 0.99:
+        return None
+    minute = offset[np.flatnonzero(half)[0]] % 60
+    first = starts[np.flatnonzero(half)[0]]
+    if time_marks == "middle":
+        places = ('the interval\'s start or end: set time_marks = "start" or "end" (which '
+                  "one, the file's documentation tells, or try each: `fluxpart check` then "
+                  "judges the clock)")
+    else:
+        places = 'the middle of the interval: set time_marks = "middle"'
+    return (f"[input] time_marks = {setting_text(time_marks)}: every interval then starts at "
+            f"minute {minute:g} of the hour ({int(half.sum())} of {len(starts)} records, the first "
+            f"at {first}), half a {interval_minutes}-minute interval off the clock grid: "
+            f"either the stamps mark {places}; or the logger's clock ran "
+            f"{interval_minutes / 2:g} minutes off, and then move the stamps onto the grid "
+            "in a copy of the file")
+
+
+def date_only_repeats_hint(stamps: pd.DatetimeIndex, text: pd.Series) -> str | None:
+    """The cause where repeated stamps are each written once as a date alone.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        One file's stamps in file order, some repeated.
+    text : pandas.Series of str
+        The stamps as written, row by row.
+
+    Returns
+    -------
+    str or None
+        Where every repeated stamp is midnight and has one row written shorter than the
+        file's usual stamp (the date alone, "2021-06-02", read as 00:00), and there are
+        several such: daily summary lines among the records; else None.
+
+    References
+    ----------
+    Common practice: a logger writes its daily table into the file of its 30-minute
+    table, stamped with the date alone.
+    """
+    duplicated = np.asarray(stamps.duplicated(keep=False))
+    if duplicated.sum() < 4:
+        return None
+    repeated = stamps[duplicated]
+    if (repeated != repeated.normalize()).any():
+        return None
+    lengths = text.astype(str).str.strip().str.len().to_numpy()
+    usual = float(np.median(lengths))
+    short = duplicated & (lengths < usual - 2)
+    days = pd.DatetimeIndex(repeated).unique()
+    if short.sum() != len(days):
+        return None
+    first = int(np.flatnonzero(short)[0])
+    return (f"each repeated stamp is midnight, written once with its time and once as the "
+            f"date alone ({str(text.iloc[first]).strip()!r}), {len(days)} day(s): daily "
+            "summary lines among the records (a logger's day table written into the same "
+            "file)? Remove those lines in a copy of the file")
+
+
+def repeated_stamp_hint(stamps: pd.DatetimeIndex) -> str | None:
+    """The cause of stamps that repeat within one file with other values, where the
+    stamps tell it.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        One file's stamps in file order, some repeated.
+
+    Returns
+    -------
+    str or None
+        For hours that never pass 12 with a quarter or more of the stamps repeated: a
+        12-hour clock written without AM/PM. For one stamp written on two consecutive
+        lines, every other step one record: both readings, a logger that changed from
+        stamping interval ends to stamping starts there (every record after it one
+        record early) and a record written twice. Else None (the caller's hint).
+
+    References
+    ----------
+    Aubinet, Vesala and Papale (2012) (m): one stamp per interval, one step apart.
+    Python's ``strftime``: ``%I`` is the hour of a 12-hour clock, ``%p`` its AM/PM.
+    """
+    duplicated = stamps.duplicated(keep=False)
+    if len(stamps) >= 96 and stamps.hour.max() <= 12 and duplicated.mean() >= 0.25:
+        return ("the hours never pass 12 and the stamps repeat within their day: a 12-hour "
+                "clock written without AM/PM (a format of %I without %p), whose morning and "
+                "afternoon records cannot be told apart; export the stamps with AM/PM or in "
+                "24-hour form")
+    rows = np.flatnonzero(duplicated)
+    if len(rows) != 2 or rows[1] != rows[0] + 1 or len(stamps) < 4:
+        return None
+    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(minutes=1), dtype=float)
+    others = np.delete(steps, rows[0])
+    step = float(np.median(others))
+    if step <= 0 or np.mean(others == step) < 0.99:
+        return None
+    return (f"the stamp is written on two consecutive lines and every other stamp follows "
+            f"the one before by {step:g} minutes: either the logger changed there from "
+            "stamping each interval's end to stamping its start (a program or export "
+            "changed), so that every record from the second line on reads one record early "
+            "(then give those records the first part's convention in a copy), or it wrote "
+            "one record twice (then keep one of them in a copy)")
