@@ -378,6 +378,105 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
             "starts reads like this); align the columns in a copy of the file")
 
 
+#: The widest shift in hours looked for between NEE and Rg beyond :func:`nee_lag`'s two:
+#: 14 h either way, the widest difference between a local standard time and UTC (the
+#: offsets of the IANA time-zone database, which Python's zoneinfo reads, run from
+#: UTC-12 to UTC+14; fact of the trade): a flux file on UTC joined with a weather file
+#: on local time, or the reverse, lies that offset apart.
+_MAX_SHIFT_HOURS = 14
+
+
+def nee_hour_shift(nee, rg, potential, interval_minutes: float, columns=None) -> str | None:
+    """A message where NEE follows Rg by more than two hours, or None.
+
+    Parameters
+    ----------
+    nee : array_like
+        NEE of each record [µmol m-2 s-1] (NaN = missing or rejected).
+    rg : array_like
+        Global radiation of each record [W m-2].
+    potential : array_like
+        Potential radiation of each record [W m-2]; only changes between two records
+        with the sun up count.
+    interval_minutes : float
+        Record interval [min].
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where no shift beyond two hours (up to
+        :data:`_MAX_SHIFT_HOURS` either way) correlates clearly best (the shifts of up
+        to two hours are :func:`nee_lag`'s).
+
+    Notes
+    -----
+    :func:`nee_lag`'s argument over the shifts a time zone makes: photosynthesis
+    follows a change of light within minutes (Lambers, Chapin & Pons 2008, ch. 2 (m)),
+    so the record-to-record changes of NEE correlate (negatively) most strongly with
+    the changes of Rg of the same records. A flux file written on UTC and joined by
+    stamp with a weather file on local time (a flux computer and a data logger set to
+    different clocks) puts NEE the UTC offset away from its light: on the example site
+    (UTC+1) the NEE 5 h late moved nighttime GPP by -815 g C m-2 and NEE by -110, 8 h
+    early GPP by -946, named only as a shift of two hours (the widest looked for) or
+    as a sign changed in some months, and 12 h late was refused as NEP. Two rules
+    decide together: the best shift's correlation exceeds the same record's by 3
+    standard errors of Fisher's z (:func:`nee_lag`'s rule), and it exceeds that of
+    the same shift one day earlier and one day later by as much. The second rule is
+    the clouds': a shift of the diurnal course alone (a column of the opposite sign
+    matches the light's course half a day away; an afternoon depression of uptake
+    hours away) repeats a day on, a passing cloud does not (:func:`nee_day_shift`).
+
+    References
+    ----------
+    Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
+    2nd ed. Springer, ch. 2 (m).
+    """
+    nee = np.asarray(nee, dtype=float)
+    rg = np.asarray(rg, dtype=float)
+    potential = np.asarray(potential, dtype=float)
+    if nee.size < 3 or not nee.size == rg.size == potential.size or interval_minutes <= 0:
+        return None
+    near = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
+    most = int(_MAX_SHIFT_HOURS * 60 // interval_minutes)
+    if most <= near:
+        return None
+    shifts = {k: k for k in range(-most, most + 1) if abs(k) < nee.size - 1}
+    scores = _sunlit_change_scores(nee, rg, potential, shifts)
+    scores = {k: score for k, score in scores.items() if math.isfinite(score[0])}
+    if 0 not in scores or len(scores) < 2:
+        return None
+    found = _decide(scores)
+    if found is None or abs(found[0]) <= near:
+        return None
+    best, strength, same, apart = found
+    per_day = int(round(1440.0 / interval_minutes))
+    z_best = math.atanh(min(strength, 0.999999))
+    for k in (best - per_day, best + per_day):
+        if abs(k) >= nee.size - 1:
+            continue
+        other, count = _sunlit_change_scores(nee, rg, potential, {k: k})[k]
+        if not math.isfinite(other):
+            continue
+        z_other = math.atanh(max(min(other, 0.999999), -0.999999))
+        error = math.sqrt(2.0 / (min(count, scores[best][1]) - 3))
+        if z_best - z_other <= _LAG_STANDARD_ERRORS * error:
+            return None
+    names = columns or {}
+    hours = abs(best) * interval_minutes / 60.0
+    later = "later" if best > 0 else "earlier"
+    return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
+            f"{names.get('rg', 'rg')!r}) {abs(best)} record(s) ({hours:g} h) {later} than "
+            f"the same record (correlation of the sunlit changes {strength:.2f} there, "
+            f"{same:.2f} in the same record, {apart:.0f} standard errors apart, and clearly "
+            "above the same shift a day on either side, as a passing cloud's): "
+            "photosynthesis follows light within minutes, so the NEE column looks "
+            f"{hours:g} h off the drivers (a flux file on UTC joined with a weather file on "
+            "local time, or the reverse, reads like this); put both files on one clock in a "
+            "copy of the file")
+
+
 #: The widest shift in whole days looked for between NEE and Rg (a month either way: a
 #: file of another month is a wrong file rather than a shifted one). Our choice.
 _MAX_SHIFT_DAYS = 31

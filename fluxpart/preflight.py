@@ -93,6 +93,7 @@ from .column_faults import (
     interpolated_nee,
     months_rising_with_light,
     nee_day_shift,
+    nee_hour_shift,
     nee_lag,
     shaded_rg,
     swapped_temperatures,
@@ -360,9 +361,15 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
         if text:
             findings.append(Finding("input (tair, tsoil)", text, False))
     if {"nee", "rg"} <= set(screened.columns):
-        text = nee_lag(screened["nee"].to_numpy(dtype=float),
-                       screened["rg"].to_numpy(dtype=float), potential, interval_minutes,
-                       names)
+        # a shift of hours first (round mistakes23): where one beyond two hours is clearly
+        # best, nee_lag would name only the widest of its own (two hours)
+        text = nee_hour_shift(screened["nee"].to_numpy(dtype=float),
+                              screened["rg"].to_numpy(dtype=float), potential,
+                              interval_minutes, names)
+        if not text:
+            text = nee_lag(screened["nee"].to_numpy(dtype=float),
+                           screened["rg"].to_numpy(dtype=float), potential, interval_minutes,
+                           names)
         if text:
             findings.append(Finding("input (nee)", text, False))
         else:
