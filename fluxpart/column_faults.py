@@ -186,6 +186,97 @@ def swapped_temperatures(tair, tsoil, interval_minutes: float, first_offset: int
             "air is a probe at the surface of bare, dry soil or, far more often, the two "
             "columns swapped: if so, exchange tair and tsoil in [input.columns]")
 
+def swapped_temperatures_in_months(tair, tsoil, stamps, interval_minutes: float,
+                                   columns=None) -> str | None:
+    """A message naming months whose soil column swings more than the air column, or None.
+
+    Parameters
+    ----------
+    tair, tsoil : array_like
+        Air and soil temperature of each record [°C] (NaN = missing), one length.
+    stamps : pandas.DatetimeIndex
+        Interval starts of the records (consecutive, one interval apart).
+    interval_minutes : float
+        Record interval [min].
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where no calendar month of 14 or more usable days (two
+        thirds of both temperatures present) breaks :func:`swapped_temperatures`'s rule.
+
+    Notes
+    -----
+    :func:`swapped_temperatures`'s rule month by month, for a record where the whole
+    record's medians keep it: a logger program changed within the year (a new logger,
+    a re-wired channel) that writes the two temperatures under each other's header from
+    then on leaves the months before it right, and over the year their days outnumber
+    the swapped ones. Heat conduction damps the soil's daily cycle with depth (to
+    exp(-z / d) of the surface's, d about 0.1 m; Campbell & Norman 1998, ch. 8 (m)) in
+    every month, so a month whose soil column swings more than 1.5 times the air's, and
+    by more than 1 K, holds a surface probe of bare, dry soil or the columns swapped.
+    On the example site, the columns swapped from July moved nighttime GPP and Reco by
+    -89 g C m-2 and daytime GPP by -62 without a word (the whole record's medians, air
+    3.8 K and soil 4.7 K, kept it quiet).
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 8 (m).
+    Hillel, D. (1998). Environmental Soil Physics. Academic Press, ch. 12 (m).
+    """
+    tair = np.asarray(tair, dtype=float)
+    tsoil = np.asarray(tsoil, dtype=float)
+    stamps = pd.DatetimeIndex(stamps)
+    per_day = int(round(1440.0 / interval_minutes)) if interval_minutes > 0 else 0
+    if per_day < 4 or not tair.size == tsoil.size == len(stamps) or tair.size == 0:
+        return None
+    first_day = stamps[0].normalize()
+    offset = int(round((stamps[0] - first_day) / pd.Timedelta(minutes=interval_minutes)))
+    pad = np.full(offset % per_day, np.nan)
+    air, soil = np.concatenate([pad, tair]), np.concatenate([pad, tsoil])
+    both = np.isfinite(air) & np.isfinite(soil)
+    days = both.size // per_day
+    if days == 0:
+        return None
+    usable = both[:days * per_day].reshape(days, per_day).sum(axis=1) >= (2 * per_day) // 3
+    air, soil = np.where(both, air, np.nan), np.where(both, soil, np.nan)
+    grid_air = air[:days * per_day].reshape(days, per_day)[usable]
+    grid_soil = soil[:days * per_day].reshape(days, per_day)[usable]
+    with np.errstate(invalid="ignore"):
+        air_ranges = np.nanmax(grid_air, axis=1) - np.nanmin(grid_air, axis=1)
+        soil_ranges = np.nanmax(grid_soil, axis=1) - np.nanmin(grid_soil, axis=1)
+    months = (first_day + pd.to_timedelta(np.flatnonzero(usable), unit="D")).strftime("%Y-%m")
+    named = []
+    for month in pd.unique(months):
+        here = months == month
+        if here.sum() < _MIN_DAYS:
+            continue
+        air_range = float(np.median(air_ranges[here]))
+        soil_range = float(np.median(soil_ranges[here]))
+        if (soil_range > SOIL_RANGE_RATIO * air_range
+                and soil_range - air_range > _SOIL_RANGE_EXCESS):
+            named.append((month, air_range, soil_range))
+    if not named:
+        return None
+    names = columns or {}
+    air_column, soil_column = names.get("tair", "tair"), names.get("tsoil", "tsoil")
+    span = (named[0][0] if len(named) == 1 else
+            f"{named[0][0]} .. {named[-1][0]}" if len(named) > 2 else
+            f"{named[0][0]}, {named[1][0]}")
+    air_range = float(np.median([m[1] for m in named]))
+    soil_range = float(np.median([m[2] for m in named]))
+    return (f"soil temperature (column {soil_column!r}) swings a median {soil_range:.1f} K a "
+            f"day, the air temperature (column {air_column!r}) {air_range:.1f} K, in "
+            f"{len(named)} month(s) ({span}), while the whole record's medians do not: heat "
+            "conduction damps the soil's daily cycle with depth (to exp(-z / 0.1 m) of the "
+            "surface's) in every month, so those months hold a probe at the surface of bare, "
+            "dry soil or, far more often, the two columns swapped there (a logger program "
+            "changed within the record): if so, exchange the two columns in those months in "
+            "a copy of the file")
+
 
 def _correlation(a: np.ndarray, b: np.ndarray, minimum: int = _MIN_PAIRS) -> tuple[float, int]:
     """Pearson correlation of the pairs both present and their count (NaN below `minimum`)."""

@@ -97,6 +97,7 @@ from .column_faults import (
     nee_lag,
     shaded_rg,
     swapped_temperatures,
+    swapped_temperatures_in_months,
     tair_lag,
     values_written_twice,
     vapour_pressure_as_vpd,
@@ -358,6 +359,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
         text = swapped_temperatures(screened["tair"].to_numpy(dtype=float),
                                     screened["tsoil"].to_numpy(dtype=float),
                                     interval_minutes, offset, names)
+        if not text:
+            # months of a record whose year keeps the rule (round mistakes23)
+            text = swapped_temperatures_in_months(screened["tair"].to_numpy(dtype=float),
+                                                  screened["tsoil"].to_numpy(dtype=float),
+                                                  index, interval_minutes, names)
         if text:
             findings.append(Finding("input (tair, tsoil)", text, False))
     if {"nee", "rg"} <= set(screened.columns):

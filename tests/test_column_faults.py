@@ -32,6 +32,7 @@ from fluxpart.column_faults import (
     shaded_rg,
     storage_in_turbulent_flux,
     swapped_temperatures,
+    swapped_temperatures_in_months,
     tair_lag,
     values_written_twice,
     vapour_pressure_as_vpd,
@@ -105,6 +106,30 @@ def test_days_counted_from_midnight():
     start = 12
     assert swapped_temperatures(soil[start:], air[start:], STEP, first_offset=start)
 
+
+def test_columns_swapped_for_the_last_month_are_named_by_month():
+    # known-truth recovery on the analytic soil (heat conduction: the soil at 5 cm keeps
+    # exp(-z / d) of the surface's amplitude, Campbell & Norman 1998, ch. 8 (m)): a logger
+    # program that puts each temperature under the other's header for the record's last
+    # 30 days; the whole record's medians keep swapped_temperatures quiet (round
+    # mistakes23: the example's columns swapped from July moved GPP by -89 g C m-2, silent)
+    air, soil = temperatures(0.05)
+    stamps = pd.date_range("2021-03-01", periods=air.size, freq=f"{STEP}min")
+    late = stamps >= "2021-06-01"
+    tair, tsoil = np.where(late, soil, air), np.where(late, air, soil)
+    assert swapped_temperatures(tair, tsoil, STEP) is None
+    text = swapped_temperatures_in_months(tair, tsoil, stamps, STEP,
+                                          columns={"tair": "t_a", "tsoil": "t_s"})
+    assert text is not None and "1 month(s) (2021-06)" in text and "'t_s'" in text
+    assert swapped_temperatures_in_months(air, soil, stamps, STEP) is None
+    # a record starting at 06:00 keeps calendar days; a month of under 14 days is not judged
+    assert swapped_temperatures_in_months(tair[12:], tsoil[12:], stamps[12:], STEP)
+    short = stamps < "2021-06-10"
+    assert swapped_temperatures_in_months(tair[short], tsoil[short], stamps[short],
+                                          STEP) is None
+    # the preflight names it
+    frame = pd.DataFrame({"tair": tair, "tsoil": tsoil}, index=stamps)
+    assert [f.stage for f in _column_faults(frame, None, STEP)] == ["input (tair, tsoil)"]
 
 def light_record(seed=0, noise=1.0):
     """Invented Rg with passing clouds, its potential radiation and an undelayed NEE."""
