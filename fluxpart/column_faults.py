@@ -2029,3 +2029,70 @@ def shaded_rg(rg, potential, stamps, columns=None) -> str | None:
             "hours' uptake at too little light; mount the sensor clear of obstacles or mark "
             "the shaded records missing in a copy of the file (a horizon that shades the "
             "canopy as well is real and can stay)")
+
+
+#: Share of the records with the sun down whose Rg is missing beyond which, beside a
+#: sensor present by day, the night is named as left blank [1]. Our choice: a sensor's or
+#: logger's outages fall by day and night alike, so a night missing nine records in ten
+#: while the day keeps at least half is a rule of the logger or the export, not an outage.
+_DARK_BLANK_SHARE = 0.9
+#: Share of the records with the sun up whose Rg must be present [1]. Our choice.
+_SUNLIT_PRESENT_SHARE = 0.5
+#: Records with the sun down needed to judge: ten nights of half-hours. Our choice.
+_DARK_RECORDS = 240
+
+
+def rg_blank_in_the_dark(rg, potential, columns=None) -> str | None:
+    """A message where Rg is missing in the dark but present by day, or None.
+
+    Parameters
+    ----------
+    rg : array_like
+        Global radiation of each record [W m-2] (NaN = missing).
+    potential : array_like
+        Potential radiation of each record [W m-2]; 0 with the sun below the horizon.
+    columns : dict, optional
+        Canonical name -> file column, to name the column in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where Rg is missing in fewer than nine in ten of the
+        records with the sun down (:data:`_DARK_BLANK_SHARE`), or missing in half or more
+        of those with the sun up, or fewer than :data:`_DARK_RECORDS` are dark.
+
+    Notes
+    -----
+    With the sun below the horizon no short-wave radiation reaches a pyranometer, which
+    reads 0 within its thermal offset of a few W m-2 (WMO 2018, Guide to Instruments and
+    Methods of Observation, vol. I, ch. 7 (m)). Some loggers and exports write no value
+    there (a value below a threshold, or a negative offset, left blank). The night's Rg
+    is then a driver gap of every night: the gap filling cannot fill it from Rg's own
+    records, the daytime method's sums come out NaN, the clock check cannot judge, and the
+    night fills of NEE lose their radiation condition (on the example site, Rg below
+    5 W m-2 left blank moved NEE by -5.6 and nighttime GPP by +9.6 g C m-2 and left
+    daytime GPP NaN, named only as unfilled Rg records; round mistakes23).
+
+    References
+    ----------
+    World Meteorological Organization (2018). Guide to Instruments and Methods of
+    Observation, vol. I, ch. 7 (measurement of radiation) (m).
+    """
+    rg = np.asarray(rg, dtype=float)
+    potential = np.asarray(potential, dtype=float)
+    if rg.size == 0 or rg.size != potential.size:
+        return None
+    dark, sunlit = potential <= 0.0, potential > 0.0
+    if int(dark.sum()) < _DARK_RECORDS or not sunlit.any():
+        return None
+    dark_missing = float(np.mean(~np.isfinite(rg[dark])))
+    sunlit_missing = float(np.mean(~np.isfinite(rg[sunlit])))
+    if dark_missing < _DARK_BLANK_SHARE or sunlit_missing >= 1.0 - _SUNLIT_PRESENT_SHARE:
+        return None
+    column = (columns or {}).get("rg", "rg")
+    return (f"rg (column {column!r}) is missing in {dark_missing:.0%} of the {int(dark.sum())} "
+            f"records with the sun down but in {sunlit_missing:.0%} of those with the sun up: "
+            "a logger or export that writes no value in the dark (or below a threshold) reads "
+            "like this; a pyranometer reads 0 there within a few W m-2, so write 0 for the "
+            "night in a copy of the file (as it is, every night is a driver gap: the daytime "
+            "method's sums come out NaN and the clock check cannot judge)")

@@ -95,6 +95,7 @@ from .column_faults import (
     nee_day_shift,
     nee_hour_shift,
     nee_lag,
+    rg_blank_in_the_dark,
     shaded_rg,
     swapped_temperatures,
     swapped_temperatures_in_months,
@@ -394,6 +395,9 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                          names)
         if text:
             findings.append(Finding("input (rg shaded)", text, False))
+        text = rg_blank_in_the_dark(screened["rg"].to_numpy(dtype=float), potential, names)
+        if text:
+            findings.append(Finding("input (rg dark)", text, False))
     if "nee" in screened.columns:
         text = interpolated_nee(screened["nee"].to_numpy(dtype=float), interval_minutes,
                                 screened.index, names)

@@ -29,6 +29,7 @@ from fluxpart.column_faults import (
     nee_day_shift,
     nee_hour_shift,
     nee_lag,
+    rg_blank_in_the_dark,
     shaded_rg,
     storage_in_turbulent_flux,
     swapped_temperatures,
@@ -205,6 +206,25 @@ def test_aligned_shifted_by_minutes_or_of_opposite_sign_is_not_named_by_hours():
     # hourly records: 14 h is 14 records either way
     hourly = lambda x: x[: x.size // 2 * 2].reshape(-1, 2).mean(axis=1)  # noqa: E731
     assert nee_hour_shift(hourly(nee), hourly(rg), hourly(potential), 60) is None
+
+
+def test_rg_left_blank_in_the_dark_is_named():
+    # known-truth recovery (round mistakes23): with the sun below the horizon a pyranometer
+    # reads 0 within its thermal offset (WMO Guide to Instruments and Methods of
+    # Observation, vol. I, ch. 7 (m)); a logger that writes no value there left every night
+    # a driver gap (the example's daytime GPP NaN, named only as unfilled Rg)
+    nee, rg, potential = light_record()
+    blank = np.where(rg < 5.0, np.nan, rg)
+    text = rg_blank_in_the_dark(blank, potential, columns={"rg": "sw_in"})
+    assert text is not None and "'sw_in'" in text and "missing in 100% of the" in text
+    index = pd.date_range("2021-03-01", periods=nee.size, freq=f"{STEP}min")
+    frame = pd.DataFrame({"rg": blank}, index=index)
+    assert [f.stage for f in _column_faults(frame, potential, STEP)] == ["input (rg dark)"]
+    # the sensor as measured, with outages by day and night alike, or dead all along: quiet
+    assert rg_blank_in_the_dark(rg, potential) is None
+    lost = np.random.default_rng(3).random(rg.size) < 0.5
+    assert rg_blank_in_the_dark(np.where(lost, np.nan, rg), potential) is None
+    assert rg_blank_in_the_dark(np.full(rg.size, np.nan), potential) is None
 
 @pytest.mark.parametrize("days", [1, -1, 10])
 def test_weather_whole_days_apart_is_named(days):
