@@ -95,6 +95,7 @@ from .column_faults import (
     nee_day_shift,
     nee_hour_shift,
     nee_lag,
+    nee_shift_from_month,
     rg_blank_in_the_dark,
     shaded_rg,
     swapped_temperatures,
@@ -377,6 +378,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
             text = nee_lag(screened["nee"].to_numpy(dtype=float),
                            screened["rg"].to_numpy(dtype=float), potential, interval_minutes,
                            names)
+        if not text:
+            # a shift from some month on only, diluted over the whole record (mistakes23)
+            text = nee_shift_from_month(screened["nee"].to_numpy(dtype=float),
+                                        screened["rg"].to_numpy(dtype=float), potential,
+                                        screened.index, interval_minutes, names)
         if text:
             findings.append(Finding("input (nee)", text, False))
         else:

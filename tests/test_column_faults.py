@@ -29,6 +29,7 @@ from fluxpart.column_faults import (
     nee_day_shift,
     nee_hour_shift,
     nee_lag,
+    nee_shift_from_month,
     rg_blank_in_the_dark,
     shaded_rg,
     storage_in_turbulent_flux,
@@ -207,6 +208,25 @@ def test_aligned_shifted_by_minutes_or_of_opposite_sign_is_not_named_by_hours():
     hourly = lambda x: x[: x.size // 2 * 2].reshape(-1, 2).mean(axis=1)  # noqa: E731
     assert nee_hour_shift(hourly(nee), hourly(rg), hourly(potential), 60) is None
 
+
+def test_nee_shifted_from_a_month_on_is_named_with_the_month():
+    # known-truth recovery (round mistakes23: the example's NEE two hours late from October
+    # moved nighttime GPP by -50 g C m-2, silent: the months before diluted the shift);
+    # photosynthesis answers light within minutes (Lambers, Chapin & Pons 2008 (m))
+    nee, rg, potential = light_record()
+    stamps = pd.date_range("2021-03-01", periods=nee.size, freq=f"{STEP}min")
+    late = np.concatenate([[np.nan, np.nan], nee[:-2]])
+    shifted = np.where(stamps >= "2021-06-01", late, nee)
+    text = nee_shift_from_month(shifted, rg, potential, stamps, STEP,
+                                columns={"nee": "co2", "rg": "sw"})
+    assert text is not None and "(60 min) later" in text and "from 2021-06 on" in text
+    # aligned, or shifted all along (nee_lag's case): not named from a month
+    assert nee_shift_from_month(nee, rg, potential, stamps, STEP) is None
+    assert nee_shift_from_month(late, rg, potential, stamps, STEP) is None
+    # the preflight names it where the whole record's checks do not
+    frame = pd.DataFrame({"nee": shifted, "rg": rg}, index=stamps)
+    found = _column_faults(frame, potential, STEP)
+    assert [f.stage for f in found] == ["input (nee)"] and "from 2021-06 on" in found[0].message
 
 def test_rg_left_blank_in_the_dark_is_named():
     # known-truth recovery (round mistakes23): with the sun below the horizon a pyranometer
