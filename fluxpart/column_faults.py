@@ -530,30 +530,12 @@ def nee_hour_shift(nee, rg, potential, interval_minutes: float, columns=None) ->
     if nee.size < 3 or not nee.size == rg.size == potential.size or interval_minutes <= 0:
         return None
     near = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
-    most = int(_MAX_SHIFT_HOURS * 60 // interval_minutes)
-    if most <= near:
+    if int(_MAX_SHIFT_HOURS * 60 // interval_minutes) <= near:
         return None
-    shifts = {k: k for k in range(-most, most + 1) if abs(k) < nee.size - 1}
-    scores = _sunlit_change_scores(nee, rg, potential, shifts)
-    scores = {k: score for k, score in scores.items() if math.isfinite(score[0])}
-    if 0 not in scores or len(scores) < 2:
-        return None
-    found = _decide(scores)
+    found = _best_shift(nee, rg, potential, interval_minutes, _MIN_PAIRS)
     if found is None or abs(found[0]) <= near:
         return None
     best, strength, same, apart = found
-    per_day = int(round(1440.0 / interval_minutes))
-    z_best = math.atanh(min(strength, 0.999999))
-    for k in (best - per_day, best + per_day):
-        if abs(k) >= nee.size - 1:
-            continue
-        other, count = _sunlit_change_scores(nee, rg, potential, {k: k})[k]
-        if not math.isfinite(other):
-            continue
-        z_other = math.atanh(max(min(other, 0.999999), -0.999999))
-        error = math.sqrt(2.0 / (min(count, scores[best][1]) - 3))
-        if z_best - z_other <= _LAG_STANDARD_ERRORS * error:
-            return None
     names = columns or {}
     hours = abs(best) * interval_minutes / 60.0
     later = "later" if best > 0 else "earlier"
