@@ -261,6 +261,18 @@ def _chosen_temperature(driver, index, screened, is_night, threshold, config):
     return choice.driver, choice
 
 
+def _forced_temperature_note(driver, index, screened, is_night, threshold, config):
+    """The warning of a set respiration temperature the night data reject, or None
+    (:func:`temperature_choice.forced_driver_note` on what ``"auto"`` would choose)."""
+    if driver == "auto" or "tsoil" not in screened.columns:
+        return None
+    try:
+        _, choice = _chosen_temperature("auto", index, screened, is_night, threshold, config)
+    except FluxpartError:
+        return None
+    return temperature_choice.forced_driver_note(driver, choice)
+
+
 def _ustar_thresholds(frame, screened, is_night, site, config):
     """Return (u* table, bootstrap draws, central threshold per year, scenario thresholds).
 
@@ -715,6 +727,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     runs = ustar_seasonal.threshold_runs(frame.index, site.latitude, ustar_table, year_runs,
                                          contrast, config.ustar_distinct_seasons)
     warnings.extend(ustar_seasonal.contrast_warnings(contrast, config.ustar_distinct_seasons))
+    forced = _forced_temperature_note(temperature, frame.index, screened, is_night,
+                                      runs["central"], config)
+    warnings.extend([forced] if forced else [])
     temperature, choice = _chosen_temperature(temperature, frame.index, screened, is_night,
                                               runs["central"], config)
     if (choice is not None and not np.isfinite(choice.tsoil_weight) and "tsoil" in frame.columns

@@ -94,9 +94,13 @@ from .column_faults import (
     interpolated_nee,
     months_rising_with_light,
     nee_day_shift,
+    nee_hour_shift,
     nee_lag,
+    nee_shift_from_month,
+    rg_blank_in_the_dark,
     shaded_rg,
     swapped_temperatures,
+    swapped_temperatures_in_months,
     tair_lag,
     values_written_twice,
     vapour_pressure_as_vpd,
@@ -359,12 +363,28 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
         text = swapped_temperatures(screened["tair"].to_numpy(dtype=float),
                                     screened["tsoil"].to_numpy(dtype=float),
                                     interval_minutes, offset, names)
+        if not text:
+            # months of a record whose year keeps the rule (round mistakes23)
+            text = swapped_temperatures_in_months(screened["tair"].to_numpy(dtype=float),
+                                                  screened["tsoil"].to_numpy(dtype=float),
+                                                  index, interval_minutes, names)
         if text:
             findings.append(Finding("input (tair, tsoil)", text, False))
     if {"nee", "rg"} <= set(screened.columns):
-        text = nee_lag(screened["nee"].to_numpy(dtype=float),
-                       screened["rg"].to_numpy(dtype=float), potential, interval_minutes,
-                       names)
+        # a shift of hours first (round mistakes23): where one beyond two hours is clearly
+        # best, nee_lag would name only the widest of its own (two hours)
+        text = nee_hour_shift(screened["nee"].to_numpy(dtype=float),
+                              screened["rg"].to_numpy(dtype=float), potential,
+                              interval_minutes, names)
+        if not text:
+            text = nee_lag(screened["nee"].to_numpy(dtype=float),
+                           screened["rg"].to_numpy(dtype=float), potential, interval_minutes,
+                           names)
+        if not text:
+            # a shift from some month on only, diluted over the whole record (mistakes23)
+            text = nee_shift_from_month(screened["nee"].to_numpy(dtype=float),
+                                        screened["rg"].to_numpy(dtype=float), potential,
+                                        screened.index, interval_minutes, names)
         if text:
             findings.append(Finding("input (nee)", text, False))
         else:
@@ -383,6 +403,9 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                          names)
         if text:
             findings.append(Finding("input (rg shaded)", text, False))
+        text = rg_blank_in_the_dark(screened["rg"].to_numpy(dtype=float), potential, names)
+        if text:
+            findings.append(Finding("input (rg dark)", text, False))
     if "nee" in screened.columns:
         text = interpolated_nee(screened["nee"].to_numpy(dtype=float), interval_minutes,
                                 screened.index, names)

@@ -508,6 +508,31 @@ def _nee_sign_message(converted: dict, columns: dict, interval_minutes: int, pot
                   "opposite sign")
 
 
+def _shifted_not_reversed(converted: dict, columns: dict, interval_minutes: int,
+                          potential) -> str | None:
+    """The refusal of an NEE column hours off its light, where it reads as NEP, or None.
+
+    Half a day off its light, a correct NEE column has its daytime uptake at night and
+    its night release by day, so :func:`_nee_sign_message` reads it as NEP. Where
+    :func:`.column_faults.nee_hour_shift` finds the column's changes following Rg's
+    clearly best hours away (a passing cloud's changes: a column of the opposite sign
+    follows the light in the same record), the refusal names the shift instead, so
+    that the file is not negated (round mistakes23: 12 h late on the example site was
+    refused as NEP).
+    """
+    from .column_faults import nee_hour_shift
+
+    nee, rg = converted.get("nee"), converted.get("rg")
+    if nee is None or rg is None or potential is None:
+        return None
+    text = nee_hour_shift(nee, rg, potential, interval_minutes,
+                          {"nee": columns.get("nee", "nee"), "rg": columns.get("rg", "rg")})
+    if text is None:
+        return None
+    return (f"column {columns.get('nee', 'nee')!r} (nee): its night values look like uptake "
+            f"and its day values like release, but not as NEP would: {text} (or list nee in "
+            "[input] accept_units to keep the values as they are)")
+
 def _storage_sign_message(converted: dict, columns: dict, potential, stamps) -> str | None:
     """A storage flux with the opposite sign (depletion positive), or None.
 
@@ -1004,6 +1029,8 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
         if "nee" not in refusals:
             refuse, warn = _nee_sign_message(converted, columns, interval_minutes, potential)
             if refuse:
+                refuse = _shifted_not_reversed(converted, columns, interval_minutes,
+                                               potential) or refuse
                 refusals["nee"] = refuse
             if warn:
                 warnings.append(warn)

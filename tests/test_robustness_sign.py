@@ -206,3 +206,25 @@ def test_second_file_with_the_opposite_sign_is_named(tmp_path, capsys):
     assert len(err) == 1 and re.match(r"error: the records of input file '.*part_b\.csv' alone "
                                       r"are refused: .*opposite sign", err[0])
     assert not (tmp_path / "out").exists()
+
+
+@pytest.mark.parametrize("seed", [5, 6])
+def test_nee_half_a_day_off_its_light_is_refused_as_shifted_not_as_nep(seed):
+    # known-truth recovery (round mistakes23): a flux file 12 h off the weather file's
+    # clock puts the day's uptake at night, so the sign rule reads NEP, and negating the
+    # column as the refusal advised would keep the shift; the changes of NEE follow the
+    # light's a passing cloud makes, 12 h away (Lambers, Chapin & Pons 2008 (m))
+    import numpy as np
+
+    year = scenarios.generate(seed)
+    frame = year.frame
+    minutes = int((frame.index[1] - frame.index[0]).total_seconds() // 60)
+    converted = {name: frame[name].to_numpy(float) for name in _NAMES}
+    k = 12 * 60 // minutes
+    converted["nee"] = np.concatenate([np.full(k, np.nan), converted["nee"][:-k]])
+    potential = _potential(frame.index, year.site, minutes)
+    refusals, _ = mixup_messages(converted, {}, {n: n for n in _NAMES}, minutes, potential)
+    assert "(12 h) later" in refusals["nee"] and "not as NEP would" in refusals["nee"]
+    # the column of the opposite sign keeps its refusal (the parametrized test above)
+    refusals, _ = _messages(year, -1.0)
+    assert "opposite sign" in refusals["nee"] and "h) later" not in refusals["nee"]
