@@ -341,6 +341,8 @@ def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
 
 def _records_text(count: int, effective: float) -> str:
     """The records a ΔBIC was taken over, and their worth in independent records."""
+    if not np.isfinite(effective):
+        return f"{count} records"
     return f"{count} records, worth {effective:.0f} independent ones"
 
 
@@ -510,7 +512,8 @@ def forced_driver_note(setting: str, choice: TemperatureChoice | None) -> str | 
     words = {"tair": "air", "tsoil": "soil"}
     return (f"respiration temperature: [processing] respiration_driver = {setting!r} is used as "
             f"set, but the measured night NEE is explained far better by {words[favoured]} "
-            f"temperature (ΔBIC soil - air = {delta:.1f} over {choice.records} night records, "
+            f"temperature (ΔBIC soil - air = {delta:.1f} over night "
+            f"{_records_text(choice.records, choice.effective_records)}, "
             f"strong evidence beyond {STRONG_EVIDENCE_BIC:g}): Reco and GPP rest on a "
             "temperature the night data reject; respiration_driver = \"auto\" would use "
             f"{words[favoured]} temperature")
