@@ -153,10 +153,13 @@ def test_without_events_the_methods_are_unchanged_bit_for_bit():
 def test_cut_windows_stay_within_one_piece_and_keep_half_a_window():
     """The consecutive Rref windows cut at events: contiguous, covering the record, each
     within one piece, from half to one and a half windows long except a piece shorter
-    than half a window, which is one window (4-day windows of Reichstein et al. 2005)."""
+    than half a window, which is one window (4-day windows of Reichstein et al. 2005).
+    Two events 6.5 and 7 days apart near grid points on both sides (review26) made one
+    window of 6.5 or 7 days before; it is now split in equal halves."""
     length = 4.0
     starts = np.arange(0.0, 40.0, length)
-    for edges in ([9.0], [10.5, 10.9], [13.0, 21.0], [0.5], [39.5], [8.0, 27.7]):
+    for edges in ([9.0], [10.5, 10.9], [13.0, 21.0], [0.5], [39.5], [8.0, 27.7],
+                  [3.0, 9.5], [2.5, 9.5], [2.1, 9.9]):
         edges = np.array(edges)
         lo, hi = pieces.cut_windows(starts, length, edges)
         assert lo[0] == 0.0 and hi[-1] == 40.0

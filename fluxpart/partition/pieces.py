@@ -148,8 +148,11 @@ def cut_windows(starts, length, edges) -> tuple:
     starts, ends : numpy.ndarray
         Consecutive windows, each within one piece: every window an edge falls in is
         cut there into two. A part shorter than half a window joins the neighbouring
-        window of its own piece (so windows run from half to one and a half windows
-        long); a piece shorter than half a window is one window.
+        window of its own piece, and a window so made longer than one and a half windows
+        (two events a few windows apart, whose fragments join the one window between
+        them) is split into ``round(span / length)`` equal windows, so windows run from
+        half to one and a half windows long; a piece shorter than half a window is one
+        window.
 
     Notes
     -----
@@ -175,7 +178,17 @@ def cut_windows(starts, length, edges) -> tuple:
         distance = np.abs(grid[:, None] - edges[None, :])
         grid = grid[~((distance < length / 2.0) & (distance > 0)).any(axis=1)]
     cuts = np.unique(np.concatenate([[starts[0]], grid, edges]))
-    return cuts, np.concatenate([cuts[1:], [end]])
+    ends = np.concatenate([cuts[1:], [end]])
+    # a piece between two events close together can lose the grid points on both sides
+    # (up to two windows long): split it into round(span / length) equal windows
+    parts = np.maximum(np.round((ends - cuts) / float(length)), 1.0).astype(np.int64)
+    long = (ends - cuts > 1.5 * float(length)) & (parts > 1)
+    if long.any():
+        extra = [cuts[i] + (ends[i] - cuts[i]) * np.arange(1, parts[i]) / parts[i]
+                 for i in np.flatnonzero(long)]
+        cuts = np.unique(np.concatenate([cuts, *extra]))
+        ends = np.concatenate([cuts[1:], [end]])
+    return cuts, ends
 
 
 def piece_interp(times, centres, values, edges) -> tuple:
