@@ -215,3 +215,35 @@ def test_a_piece_without_windows_borrows_its_neighbours_and_is_named():
         assert f"no {method} window of its own" in note
     assert pieces.window_notes(index, crop["breaks"], rref_windows, day.parameters) == []
     assert pieces.window_notes(index, None, rref_windows, day.parameters) == []
+
+
+def test_daytime_windows_cut_off_the_hour_keep_the_records_time_unit():
+    """An event at 12:30 cuts a daytime window at a fractional day, which pandas
+    (general-purpose library: a day fraction not whole in microseconds takes nanosecond
+    resolution) turned into a window table of ns stamps such as 12:29:59.999999997
+    beside a record index of µs (review26). The uncertainty's window parts then read the
+    ns counts against the µs ones (asi8 counts each index's own unit) and put every
+    record at one window: a 60-day invented crop's daytime parameter error grew some
+    thirtyfold in a pipeline run. Now the table keeps the records' unit and whole
+    seconds, and a record's window is the same whatever unit either side has."""
+    from fluxpart.uncertainty import window_membership
+
+    crop = _harvested_crop(1)
+    index = crop["index"].as_unit("us")
+    breaks = event_breaks(index, ["2022-07-01T12:30"])
+    day = partition_daytime(index, crop["measured"], crop["rg"], crop["vpd"], crop["tair"],
+                            crop["night"], breaks=breaks).parameters
+    for column in ("window_start", "window_end", "window_centre"):
+        stamps = pd.DatetimeIndex(day[column])
+        assert stamps.unit == index.unit
+        assert (stamps == stamps.round("s")).all()
+    assert (pd.DatetimeIndex(day["window_end"]) == pd.Timestamp("2022-07-01 12:30")).any()
+    own, se = window_membership(index, day, value="rref", se="rref_se", breaks=breaks)
+    assert len(np.unique(own)) > 10                   # records spread over the windows
+    in_ns = day.assign(**{c: pd.DatetimeIndex(day[c]).as_unit("ns")
+                          for c in ("window_start", "window_end", "window_centre")})
+    for frame, records in ((in_ns, index), (day, index.as_unit("ns")), (in_ns, index)):
+        got, got_se = window_membership(records, frame, value="rref", se="rref_se",
+                                        breaks=breaks)
+        np.testing.assert_array_equal(got, own)
+        np.testing.assert_array_equal(got_se, se)
