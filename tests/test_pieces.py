@@ -247,3 +247,39 @@ def test_daytime_windows_cut_off_the_hour_keep_the_records_time_unit():
                                         breaks=breaks)
         np.testing.assert_array_equal(got, own)
         np.testing.assert_array_equal(got_se, se)
+
+
+def test_many_pieces_without_windows_are_one_warning_per_method():
+    """Known truth on the invented crop: events at noon on 20 consecutive days (a
+    rotational grazing declared day by day) leave pieces of one day, shorter than half a
+    4-day Rref window (Reichstein et al. 2005) -- each a window of its own that may hold
+    too few night records. Each such piece was one warning line per method (the example
+    year with 30 daily events printed 27 of them; review26): now one line per method
+    counts the pieces and names the first three, and a single piece keeps its own
+    sentence."""
+    crop = _harvested_crop(2)
+    index = crop["index"]
+    events = [f"{index[0] + pd.Timedelta(days=day, hours=12):%Y-%m-%d %H:%M}"
+              for day in range(20, 40)]
+    breaks = event_breaks(index, events)
+    rref_windows = fit_rref_windows(index, crop["measured"], crop["tair"], crop["night"],
+                                    np.full(len(index), LLOYD_TAYLOR_E0_KELVIN),
+                                    breaks=breaks)
+    day = _daytime(crop, breaks)
+    per_piece = {method: pieces.pieces_without_windows(index, breaks, table["window_centre"])
+                 for method, table in (("nighttime", rref_windows),
+                                       ("daytime", day.parameters[day.parameters["accepted"]]))}
+    notes = pieces.window_notes(index, breaks, rref_windows, day.parameters)
+    methods = [method for method, found in per_piece.items() if found]
+    assert methods and len(notes) == len(methods)
+    for method, note in zip(methods, notes, strict=True):
+        found = per_piece[method]
+        if len(found) > 1:
+            assert note.startswith(f"events: {len(found)} pieces of the record have no "
+                                   f"{method} window of their own")
+            first, last = found[0]
+            assert f"from {index[first]:%Y-%m-%d %H:%M} to {index[last]:%Y-%m-%d %H:%M}" in note
+            assert note.count("; from ") == min(len(found), 3) - 1
+            if len(found) > 3:
+                assert f"and {len(found) - 3} more" in note
+    assert any(len(found) > 3 for found in per_piece.values())

@@ -325,8 +325,9 @@ def window_notes(index, breaks, night_windows=None, day_parameters=None) -> list
     Returns
     -------
     list of str
-        One warning per method and piece without a window of its own: its records took
-        the windows of the pieces beside it (:func:`piece_interp`,
+        One warning per method with pieces without a window of their own (the piece
+        named, or where several, their number and the first three): their records took
+        the windows of the pieces beside them (:func:`piece_interp`,
         :func:`piece_neighbours`). Empty without breaks.
     """
     notes = []
@@ -338,11 +339,28 @@ def window_notes(index, breaks, night_windows=None, day_parameters=None) -> list
             table[table[used].to_numpy(dtype=bool)]
         if not len(kept):
             continue
-        for first, last in pieces_without_windows(index, breaks, kept["window_centre"]):
+        found = pieces_without_windows(index, breaks, kept["window_centre"])
+        spans = [f"from {index[first]:%Y-%m-%d %H:%M} to {index[last]:%Y-%m-%d %H:%M}"
+                 for first, last in found]
+        if len(found) == 1:
             notes.append(
-                f"events: the piece of the record from {index[first]:%Y-%m-%d %H:%M} to "
-                f"{index[last]:%Y-%m-%d %H:%M} (interval starts) has no {method} window of "
-                "its own (too short or too few measured NEE records between the events); "
-                f"its {method} GPP and Reco take the windows of the pieces beside it, across "
-                "the events")
+                f"events: the piece of the record {spans[0]} (interval starts) has no "
+                f"{method} window of its own (too short or too few measured NEE records "
+                f"between the events); its {method} GPP and Reco take the windows of the "
+                "pieces beside it, across the events")
+        elif found:
+            # one line per method, however many events (daily events gave one per piece)
+            shown = "; ".join(spans[:_LISTED_PIECES]) + (
+                f"; and {len(found) - _LISTED_PIECES} more" if len(found) > _LISTED_PIECES
+                else "")
+            notes.append(
+                f"events: {len(found)} pieces of the record have no {method} window of their "
+                f"own (too short or too few measured NEE records between the events): {shown} "
+                f"(interval starts); their {method} GPP and Reco take the windows of the "
+                "pieces beside them, across the events")
     return notes
+
+
+#: Pieces without a window named one by one in :func:`window_notes` before the rest are
+#: counted.
+_LISTED_PIECES = 3
