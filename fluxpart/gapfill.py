@@ -1501,10 +1501,12 @@ def crossed_event_notes(index, events, crossed) -> list:
                  else f"{count} NEE records from {first} to {last}")
         summary.append(where)
         crossed_names += [name for name in names if name not in crossed_names]
+        one = count == 1
         notes.append(
             f"events: {where} (interval starts) could not be filled from "
-            "their own piece of the record (too few measured records between the events or "
-            f"the record's edge around them); they were filled across {', '.join(names)} "
+            f"{'its' if one else 'their'} own piece of the record (too few measured records "
+            "between the events or the record's edge around them); "
+            f"{'it was' if one else 'they were'} filled across {', '.join(names)} "
             f"from the neighbouring piece{'s' if len(names) > 1 else ''} as well, rather "
             "than left unfilled")
     if len(notes) <= _LISTED_JOINS:

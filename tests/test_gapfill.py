@@ -1314,6 +1314,14 @@ def test_many_joins_across_events_are_one_warning():
     assert events[3] not in note
     three = crossed_event_notes(index, events, crossed[:3])
     assert len(three) == 3 and all(f"across {events[j]} " in three[j] for j in range(3))
+    assert all("from their own piece" in note and "they were filled" in note
+               for note in three)
+    # one record: "its own piece ... it was filled" (English agreement, common practice)
+    (single,) = crossed_event_notes(index, events, [(0, int(breaks[1]), int(breaks[0]),
+                                                     int(breaks[0]), 1)])
+    assert single.startswith("events: 1 NEE record at 2021-07-02 12:00 (interval starts) "
+                             "could not be filled from its own piece")
+    assert f"; it was filled across {events[0]} from the neighbouring piece as" in single
 
 
 def test_an_event_at_the_records_start_is_not_called_outside_it():
