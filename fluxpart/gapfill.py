@@ -1489,22 +1489,43 @@ def crossed_event_notes(index, events, crossed) -> list:
     -------
     list of str
         One warning per join naming its records and the events its piece crosses;
-        empty where none.
+        beyond three joins (events day after day) one warning for all, counting the
+        records and joins and naming the first three; empty where none.
     """
-    notes = []
+    notes, summary, crossed_names = [], [], []
     for start, stop, first_record, last_record, count in crossed:
         names = [event for event in events
                  if any(start < b < stop for b in event_breaks(index, [event]))]
         first, last = (f"{index[i]:%Y-%m-%d %H:%M}" for i in (first_record, last_record))
         where = (f"1 NEE record at {first}" if count == 1
                  else f"{count} NEE records from {first} to {last}")
+        summary.append(where)
+        crossed_names += [name for name in names if name not in crossed_names]
+        one = count == 1
         notes.append(
             f"events: {where} (interval starts) could not be filled from "
-            "their own piece of the record (too few measured records between the events or "
-            f"the record's edge around them); they were filled across {', '.join(names)} "
+            f"{'its' if one else 'their'} own piece of the record (too few measured records "
+            "between the events or the record's edge around them); "
+            f"{'it was' if one else 'they were'} filled across {', '.join(names)} "
             f"from the neighbouring piece{'s' if len(names) > 1 else ''} as well, rather "
             "than left unfilled")
-    return notes
+    if len(notes) <= _LISTED_JOINS:
+        return notes
+    total = sum(join[4] for join in crossed)
+    shown = "; ".join(summary[:_LISTED_JOINS]) + f"; and {len(summary) - _LISTED_JOINS} more"
+    events_shown = ", ".join(crossed_names[:_LISTED_JOINS]) + (
+        f" and {len(crossed_names) - _LISTED_JOINS} more" if len(crossed_names) > _LISTED_JOINS
+        else "")
+    return [f"events: {total} NEE records in {len(crossed)} stretches could not be filled "
+            "from their own piece of the record (too few measured records between the "
+            f"events or the record's edge around them): {shown} (interval starts); they "
+            f"were filled across {len(crossed_names)} of the events ({events_shown}) from "
+            "the neighbouring pieces as well, rather than left unfilled"]
+
+
+#: Joins across events named one warning each before :func:`crossed_event_notes` sums
+#: them in one.
+_LISTED_JOINS = 3
 
 
 def clearness_index(rg, potential, *, min_potential=_CLEARNESS_MIN_POTENTIAL) -> np.ndarray:

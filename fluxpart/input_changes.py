@@ -29,8 +29,14 @@ __all__ = ["located_changes"]
 _LISTED = 3
 
 
-def _value(value) -> str:
-    return "missing" if not np.isfinite(value) else f"{value:.10g}"
+def _value(value, name: str = "") -> str:
+    if not np.isfinite(value):
+        return "missing"
+    if name == "nee_flag":
+        # the canonical site flag is 0 or 1, not the file's code (fluxpart.io's
+        # flag_accept decides): say what it means, not a number the file does not hold
+        return "rejected" if value == 1 else "kept"
+    return f"{value:.10g}"
 
 
 def _stamp(when) -> str:
@@ -108,10 +114,17 @@ def located_changes(site_config: Path, input_path: Path, stored: pd.DataFrame,
             # the values as read, in the canonical unit (a kPa column is shown in hPa)
             unit = VARIABLES[name].unit if name in VARIABLES else ""
             what = f"{name}, {unit}" if unit and unit != "1" else name
-            label = f"{names[name]!r} ({what})" if isinstance(names.get(name), str) \
+            source = names.get(name)
+            if isinstance(source, list) and all(isinstance(c, str) for c in source):
+                source = " + ".join(source)       # nee_flag may combine several columns
+            if name == "nee_flag":
+                what = "site flag: record kept or rejected by [input] flag_accept"
+            label = f"{source!r} ({what})" if isinstance(source, str) \
+                else f"{name!r} ({what})" if name == "nee_flag" \
                 else f"{name!r} ({unit})" if unit and unit != "1" else repr(name)
             listed.append(f"record starting {_stamp(common[row])} {label}: "
-                          f"{_value(right[row, col])} then, {_value(left[row, col])} now")
+                          f"{_value(right[row, col], name)} then, "
+                          f"{_value(left[row, col], name)} now")
         more = "; ..." if len(rows) > _LISTED else ""
         parts.append(f"{len(rows)} value(s) in {len(np.unique(rows))} record(s) differ ("
                      f"{'; '.join(listed)}{more})")

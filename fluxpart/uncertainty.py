@@ -1450,9 +1450,12 @@ def window_membership(index, windows: pd.DataFrame, value="rref", se="rref_se",
     if retained is None:
         return np.full(n, -1), np.full(n, np.nan)
     kept, relative = retained
-    centres = (pd.DatetimeIndex(kept["window_start"]).asi8
-               + pd.DatetimeIndex(kept["window_end"]).asi8) / 2.0
-    times = index.asi8.astype(float)
+    # the window times on the records' own clock unit: asi8 counts that unit (a table of
+    # ns windows against a µs index put every record at the first window)
+    unit = pd.DatetimeIndex(index).unit
+    centres = (pd.DatetimeIndex(kept["window_start"]).as_unit(unit).asi8
+               + pd.DatetimeIndex(kept["window_end"]).as_unit(unit).asi8) / 2.0
+    times = pd.DatetimeIndex(index).asi8.astype(float)
     nearest = _nearest_centre(times, centres)
     edges = pieces.break_times(times, breaks)
     if len(edges):
@@ -1792,8 +1795,10 @@ def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
     -------
     float
         w = 1 / (1 + exp(ΔBIC / 2)) with ΔBIC = :func:`laplace_delta_bic` of the
-        other model against the central one over the n night records both cover
-        (equal parameter counts): the posterior weight of the other model under
+        other model against the central one over the night records both cover,
+        counted as their effective number of independent records
+        (:func:`effective_records`; equal parameter counts): the posterior weight of
+        the other model under
         equal priors (Schwarz 1978; Burnham & Anderson 2002, ch. 6). 0 when fewer
         than 10 records are shared.
 

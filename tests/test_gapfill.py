@@ -1293,6 +1293,37 @@ def test_records_a_join_leaves_unfilled_are_counted_by_the_join_that_fills_them(
     assert events[1] in across and events[2] in across and events[0] not in across
 
 
+def test_many_joins_across_events_are_one_warning():
+    """Known truth on an invented record: events at noon on 8 consecutive days and five
+    joins of 4 records each across the first five. The example year with 30 daily
+    events printed one warning per join (11 lines; review26); beyond three joins one
+    line now counts 20 records in 5 stretches, names the first three stretches and the
+    first three events crossed, and counts the rest. Three joins keep a line each."""
+    index = pd.date_range("2021-07-01", periods=10 * 48, freq="30min")
+    events = [f"2021-07-{day:02d}T12:00" for day in range(2, 10)]
+    breaks = event_breaks(index, events)
+    bounds = [0, *breaks.tolist(), len(index)]
+    crossed = [(bounds[j], bounds[j + 2], int(breaks[j]) - 2, int(breaks[j]) + 1, 4)
+               for j in range(5)]
+    (note,) = crossed_event_notes(index, events, crossed)
+    assert note.startswith("events: 20 NEE records in 5 stretches could not be filled")
+    assert "4 NEE records from 2021-07-02 11:00 to 2021-07-02 12:30" in note
+    assert "; and 2 more (interval starts)" in note
+    assert (f"filled across 5 of the events ({events[0]}, {events[1]}, {events[2]} and 2 "
+            "more)") in note
+    assert events[3] not in note
+    three = crossed_event_notes(index, events, crossed[:3])
+    assert len(three) == 3 and all(f"across {events[j]} " in three[j] for j in range(3))
+    assert all("from their own piece" in note and "they were filled" in note
+               for note in three)
+    # one record: "its own piece ... it was filled" (English agreement, common practice)
+    (single,) = crossed_event_notes(index, events, [(0, int(breaks[1]), int(breaks[0]),
+                                                     int(breaks[0]), 1)])
+    assert single.startswith("events: 1 NEE record at 2021-07-02 12:00 (interval starts) "
+                             "could not be filled from its own piece")
+    assert f"; it was filled across {events[0]} from the neighbouring piece as" in single
+
+
 def test_an_event_at_the_records_start_is_not_called_outside_it():
     """A record begun at midnight of a harvest day (``events = ["2021-07-20"]``, the first
     stamp 2021-07-20 00:00) holds the event at its first record: nothing to keep apart,

@@ -153,10 +153,13 @@ def test_without_events_the_methods_are_unchanged_bit_for_bit():
 def test_cut_windows_stay_within_one_piece_and_keep_half_a_window():
     """The consecutive Rref windows cut at events: contiguous, covering the record, each
     within one piece, from half to one and a half windows long except a piece shorter
-    than half a window, which is one window (4-day windows of Reichstein et al. 2005)."""
+    than half a window, which is one window (4-day windows of Reichstein et al. 2005).
+    Two events 6.5 and 7 days apart near grid points on both sides (review26) made one
+    window of 6.5 or 7 days before; it is now split in equal halves."""
     length = 4.0
     starts = np.arange(0.0, 40.0, length)
-    for edges in ([9.0], [10.5, 10.9], [13.0, 21.0], [0.5], [39.5], [8.0, 27.7]):
+    for edges in ([9.0], [10.5, 10.9], [13.0, 21.0], [0.5], [39.5], [8.0, 27.7],
+                  [3.0, 9.5], [2.5, 9.5], [2.1, 9.9]):
         edges = np.array(edges)
         lo, hi = pieces.cut_windows(starts, length, edges)
         assert lo[0] == 0.0 and hi[-1] == 40.0
@@ -212,3 +215,71 @@ def test_a_piece_without_windows_borrows_its_neighbours_and_is_named():
         assert f"no {method} window of its own" in note
     assert pieces.window_notes(index, crop["breaks"], rref_windows, day.parameters) == []
     assert pieces.window_notes(index, None, rref_windows, day.parameters) == []
+
+
+def test_daytime_windows_cut_off_the_hour_keep_the_records_time_unit():
+    """An event at 12:30 cuts a daytime window at a fractional day, which pandas
+    (general-purpose library: a day fraction not whole in microseconds takes nanosecond
+    resolution) turned into a window table of ns stamps such as 12:29:59.999999997
+    beside a record index of µs (review26). The uncertainty's window parts then read the
+    ns counts against the µs ones (asi8 counts each index's own unit) and put every
+    record at one window: a 60-day invented crop's daytime parameter error grew some
+    thirtyfold in a pipeline run. Now the table keeps the records' unit and whole
+    seconds, and a record's window is the same whatever unit either side has."""
+    from fluxpart.uncertainty import window_membership
+
+    crop = _harvested_crop(1)
+    index = crop["index"].as_unit("us")
+    breaks = event_breaks(index, ["2022-07-01T12:30"])
+    day = partition_daytime(index, crop["measured"], crop["rg"], crop["vpd"], crop["tair"],
+                            crop["night"], breaks=breaks).parameters
+    for column in ("window_start", "window_end", "window_centre"):
+        stamps = pd.DatetimeIndex(day[column])
+        assert stamps.unit == index.unit
+        assert (stamps == stamps.round("s")).all()
+    assert (pd.DatetimeIndex(day["window_end"]) == pd.Timestamp("2022-07-01 12:30")).any()
+    own, se = window_membership(index, day, value="rref", se="rref_se", breaks=breaks)
+    assert len(np.unique(own)) > 10                   # records spread over the windows
+    in_ns = day.assign(**{c: pd.DatetimeIndex(day[c]).as_unit("ns")
+                          for c in ("window_start", "window_end", "window_centre")})
+    for frame, records in ((in_ns, index), (day, index.as_unit("ns")), (in_ns, index)):
+        got, got_se = window_membership(records, frame, value="rref", se="rref_se",
+                                        breaks=breaks)
+        np.testing.assert_array_equal(got, own)
+        np.testing.assert_array_equal(got_se, se)
+
+
+def test_many_pieces_without_windows_are_one_warning_per_method():
+    """Known truth on the invented crop: events at noon on 20 consecutive days (a
+    rotational grazing declared day by day) leave pieces of one day, shorter than half a
+    4-day Rref window (Reichstein et al. 2005) -- each a window of its own that may hold
+    too few night records. Each such piece was one warning line per method (the example
+    year with 30 daily events printed 27 of them; review26): now one line per method
+    counts the pieces and names the first three, and a single piece keeps its own
+    sentence."""
+    crop = _harvested_crop(2)
+    index = crop["index"]
+    events = [f"{index[0] + pd.Timedelta(days=day, hours=12):%Y-%m-%d %H:%M}"
+              for day in range(20, 40)]
+    breaks = event_breaks(index, events)
+    rref_windows = fit_rref_windows(index, crop["measured"], crop["tair"], crop["night"],
+                                    np.full(len(index), LLOYD_TAYLOR_E0_KELVIN),
+                                    breaks=breaks)
+    day = _daytime(crop, breaks)
+    per_piece = {method: pieces.pieces_without_windows(index, breaks, table["window_centre"])
+                 for method, table in (("nighttime", rref_windows),
+                                       ("daytime", day.parameters[day.parameters["accepted"]]))}
+    notes = pieces.window_notes(index, breaks, rref_windows, day.parameters)
+    methods = [method for method, found in per_piece.items() if found]
+    assert methods and len(notes) == len(methods)
+    for method, note in zip(methods, notes, strict=True):
+        found = per_piece[method]
+        if len(found) > 1:
+            assert note.startswith(f"events: {len(found)} pieces of the record have no "
+                                   f"{method} window of their own")
+            first, last = found[0]
+            assert f"from {index[first]:%Y-%m-%d %H:%M} to {index[last]:%Y-%m-%d %H:%M}" in note
+            assert note.count("; from ") == min(len(found), 3) - 1
+            if len(found) > 3:
+                assert f"and {len(found) - 3} more" in note
+    assert any(len(found) > 3 for found in per_piece.values())

@@ -205,6 +205,23 @@ def test_verify_names_the_record_and_column_of_an_edited_input(bundle, tmp_path)
     assert f"{float(old):.10g} then, {float(old) + 1.5:.10g} now" in text
 
 
+def test_an_edited_site_flag_is_named_kept_or_rejected_not_by_its_internal_code(bundle,
+                                                                               tmp_path):
+    """The run reads the site flag as 0 (kept) or 1 (rejected) after [input] flag_accept
+    (here [0], the example's); an edit of the file's code 0 to 2 was shown as "0 then,
+    1 now" beside the file's column name, a 1 the file does not hold (review26). Known
+    truth: line 500's qc_co2 set to 2 (a code the config rejects) is named as the record
+    kept then and rejected now."""
+    root = _copy(bundle, tmp_path)
+    stamp, old = _edit_value(root / "tower.csv", 499, 8, 2.0)
+    assert stamp == "202101110930" and float(old) == 0.0
+    text = verify(root / "out").differences[0].describe()
+    assert "1 value(s) in 1 record(s) differ" in text
+    assert ("record starting 2021-01-11 09:00 'qc_co2' (site flag: record kept or rejected "
+            "by [input] flag_accept): kept then, rejected now") in text
+    assert "0 then" not in text and "1 now" not in text
+
+
 def test_verify_names_records_added_and_removed_from_an_input(bundle, tmp_path):
     """Known truth: the last 48 half-hours of the invented record cut off (a copy cut
     short), then a day of records appended that the run never read."""

@@ -483,6 +483,37 @@ def test_driver_weight_favours_the_temperature_that_fits_the_night_data():
     assert driver_weight(nee[:5], night[:5], truth[:5], worse[:5]) == 0.0
 
 
+def test_driver_weight_counts_the_effective_records_of_autocorrelated_residuals():
+    """Since 0.23.0 the weight's BIC counts n (1 - rho)/(1 + rho) records, not n (Wilks
+    2011, section 5.2.4 (m)). Known truth on invented night records: residuals an AR(1)
+    series of lag-1 correlation 0.6, so the evidence is that of n / 4 independent
+    records and the weight's log-odds ln(w / (1 - w)) = -ΔBIC / 2 are a quarter of those
+    over all n (ΔBIC is proportional to the records counted, Schwarz 1978). Nothing
+    else tested driver_weight's count: reverted to n, this fails (review26)."""
+    from fluxpart.uncertainty import driver_weight
+
+    rng = np.random.default_rng(26)
+    n = 4000
+    noise = np.empty(n)
+    noise[0] = rng.standard_normal()
+    for i in range(1, n):
+        noise[i] = 0.6 * noise[i - 1] + np.sqrt(1 - 0.36) * rng.standard_normal()
+    truth = 2.0 + np.sin(np.arange(n) / 30.0)
+    nee = truth + 0.3 * noise
+    other = truth + 0.06                  # a worse respiration model
+    night = np.ones(n, dtype=bool)
+    weight = driver_weight(nee, night, truth, other)
+    log_odds = np.log(weight / (1.0 - weight))
+    all_records = -n * np.log(np.abs(nee - other).sum() / np.abs(nee - truth).sum())
+    assert 0.0 < weight < 0.5 and all_records < -2.0       # the evidence favours the truth
+    assert log_odds / all_records == pytest.approx((1 - 0.6) / (1 + 0.6), rel=0.1)
+    # white residuals keep all n records: the same log-odds as over n
+    white = truth + 0.3 * rng.standard_normal(n)
+    full = -n * np.log(np.abs(white - other).sum() / np.abs(white - truth).sum())
+    w_white = driver_weight(white, night, truth, other)
+    assert np.log(w_white / (1.0 - w_white)) == pytest.approx(full, rel=0.05)
+
+
 def test_laplace_delta_bic_is_the_difference_of_scipys_laplace_log_likelihoods():
     """ΔBIC under Laplace errors = -2 (ln L_model - ln L_reference) + k ln n, each ln L the
     maximised Laplace log-likelihood (scale = mean |residual|; scipy.stats.laplace)."""

@@ -1527,7 +1527,16 @@ def _neighbours(days, centres):
 
 def _parameter_table(index, fit) -> pd.DataFrame:
     origin = index[0].normalize()
-    to_time = lambda offsets: origin + pd.to_timedelta(offsets, unit="D")  # noqa: E731
+
+    def to_time(offsets):
+        times = origin + pd.to_timedelta(offsets, unit="D")
+        if times.unit != origin.unit:
+            # a window cut at an event (pieces) ends at a fractional day that the
+            # nanosecond unit pandas then picks shows as 00:29:59.999999997: the second,
+            # on the records' unit, as the windows without events are
+            times = times.round("s").as_unit(origin.unit)
+        return times
+
     starts, ends, windows, theta, errors = (fit["starts"], fit["ends"], fit["windows"],
                                             fit["theta"], fit["errors"])
     e0_fit, status, count = fit["e0_fit"], fit["status"], len(fit["starts"])

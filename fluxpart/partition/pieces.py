@@ -148,8 +148,11 @@ def cut_windows(starts, length, edges) -> tuple:
     starts, ends : numpy.ndarray
         Consecutive windows, each within one piece: every window an edge falls in is
         cut there into two. A part shorter than half a window joins the neighbouring
-        window of its own piece (so windows run from half to one and a half windows
-        long); a piece shorter than half a window is one window.
+        window of its own piece, and a window so made longer than one and a half windows
+        (two events a few windows apart, whose fragments join the one window between
+        them) is split into ``round(span / length)`` equal windows, so windows run from
+        half to one and a half windows long; a piece shorter than half a window is one
+        window.
 
     Notes
     -----
@@ -175,7 +178,17 @@ def cut_windows(starts, length, edges) -> tuple:
         distance = np.abs(grid[:, None] - edges[None, :])
         grid = grid[~((distance < length / 2.0) & (distance > 0)).any(axis=1)]
     cuts = np.unique(np.concatenate([[starts[0]], grid, edges]))
-    return cuts, np.concatenate([cuts[1:], [end]])
+    ends = np.concatenate([cuts[1:], [end]])
+    # a piece between two events close together can lose the grid points on both sides
+    # (up to two windows long): split it into round(span / length) equal windows
+    parts = np.maximum(np.round((ends - cuts) / float(length)), 1.0).astype(np.int64)
+    long = (ends - cuts > 1.5 * float(length)) & (parts > 1)
+    if long.any():
+        extra = [cuts[i] + (ends[i] - cuts[i]) * np.arange(1, parts[i]) / parts[i]
+                 for i in np.flatnonzero(long)]
+        cuts = np.unique(np.concatenate([cuts, *extra]))
+        ends = np.concatenate([cuts[1:], [end]])
+    return cuts, ends
 
 
 def piece_interp(times, centres, values, edges) -> tuple:
@@ -312,8 +325,9 @@ def window_notes(index, breaks, night_windows=None, day_parameters=None) -> list
     Returns
     -------
     list of str
-        One warning per method and piece without a window of its own: its records took
-        the windows of the pieces beside it (:func:`piece_interp`,
+        One warning per method with pieces without a window of their own (the piece
+        named, or where several, their number and the first three): their records took
+        the windows of the pieces beside them (:func:`piece_interp`,
         :func:`piece_neighbours`). Empty without breaks.
     """
     notes = []
@@ -325,11 +339,28 @@ def window_notes(index, breaks, night_windows=None, day_parameters=None) -> list
             table[table[used].to_numpy(dtype=bool)]
         if not len(kept):
             continue
-        for first, last in pieces_without_windows(index, breaks, kept["window_centre"]):
+        found = pieces_without_windows(index, breaks, kept["window_centre"])
+        spans = [f"from {index[first]:%Y-%m-%d %H:%M} to {index[last]:%Y-%m-%d %H:%M}"
+                 for first, last in found]
+        if len(found) == 1:
             notes.append(
-                f"events: the piece of the record from {index[first]:%Y-%m-%d %H:%M} to "
-                f"{index[last]:%Y-%m-%d %H:%M} (interval starts) has no {method} window of "
-                "its own (too short or too few measured NEE records between the events); "
-                f"its {method} GPP and Reco take the windows of the pieces beside it, across "
-                "the events")
+                f"events: the piece of the record {spans[0]} (interval starts) has no "
+                f"{method} window of its own (too short or too few measured NEE records "
+                f"between the events); its {method} GPP and Reco take the windows of the "
+                "pieces beside it, across the events")
+        elif found:
+            # one line per method, however many events (daily events gave one per piece)
+            shown = "; ".join(spans[:_LISTED_PIECES]) + (
+                f"; and {len(found) - _LISTED_PIECES} more" if len(found) > _LISTED_PIECES
+                else "")
+            notes.append(
+                f"events: {len(found)} pieces of the record have no {method} window of their "
+                f"own (too short or too few measured NEE records between the events): {shown} "
+                f"(interval starts); their {method} GPP and Reco take the windows of the "
+                "pieces beside them, across the events")
     return notes
+
+
+#: Pieces without a window named one by one in :func:`window_notes` before the rest are
+#: counted.
+_LISTED_PIECES = 3

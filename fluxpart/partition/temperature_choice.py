@@ -216,9 +216,10 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     -----
     Each candidate's Reco is evaluated on its *measured* temperature, so only
     records with both temperatures measured are compared. Night residuals are
-    autocorrelated, so the weight overstates the evidence (see
-    :func:`fluxpart.uncertainty.driver_weight`); the choice itself only depends
-    on which sum of absolute residuals is smaller.
+    autocorrelated: since 0.23.0 ΔBIC, and so both the choice (soil temperature
+    needs ΔBIC < −:data:`MIN_EVIDENCE_BIC`) and the weight, counts the effective
+    number of independent records of the favoured fit's residuals
+    (:func:`fluxpart.uncertainty.effective_records`), not every record.
 
     References
     ----------
