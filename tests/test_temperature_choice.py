@@ -238,7 +238,7 @@ def test_a_fit_with_e0_pressed_against_the_range_is_set_aside():
     nee = _night_nee(rng, index, tair, is_night, noise=0.6)
     choice = choose_respiration_temperature(index, nee, tair, damped, is_night)
     assert choice.driver == "tair"
-    assert "within one standard error of the accepted range [30.0, 450.0] K" in choice.reason
+    assert "within one standard error of an end of the accepted range [30.0, 450.0] K" in choice.reason
     assert "soil-temperature fit puts E0 at" in choice.reason
 
 

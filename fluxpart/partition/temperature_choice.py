@@ -264,7 +264,7 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
         driver, set_aside = ("tair", "tsoil") if pressed["tsoil"] else ("tsoil", "tair")
         words = {"tair": "air", "tsoil": "soil"}
         reason = (f"the {words[set_aside]}-temperature fit puts E0 at {pressed[set_aside]} K, "
-                  f"within one standard error of the accepted range {list(bounds)} K: "
+                  f"within one standard error of an end of the accepted range {list(bounds)} K: "
                   f"{words[driver]} temperature used (ΔBIC soil - air = {delta_bic:.1f} over "
                   f"{_records_text(count, effective)})")
         return TemperatureChoice(driver, reason, sad, count, delta_bic, weight, fits,
@@ -280,8 +280,8 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
                   f"(ΔBIC soil - air = {delta_bic:.1f} over {_records_text(count, effective)})")
         if pressed[driver]:
             reason += (f", strongly (beyond {STRONG_EVIDENCE_BIC:g}), although its E0 of "
-                       f"{pressed[driver]} K is within one standard error of the accepted "
-                       f"range {list(bounds)} K")
+                       f"{pressed[driver]} K is within one standard error of an end of the "
+                       f"accepted range {list(bounds)} K")
     return TemperatureChoice(driver, reason, sad, count, delta_bic, weight, fits,
                              effective_records=effective)
 
