@@ -1292,7 +1292,7 @@ def same_temperature_columns(tair, tsoil, stamps, interval_minutes: float,
     equal = np.abs(a[positions] - b[positions]) <= tolerance
     starts, lengths = gap_runs(equal)
     runs = []
-    for start, length in zip(starts, lengths):
+    for start, length in zip(starts, lengths, strict=True):
         if length < needed:
             continue
         values = a[positions[start:start + length]]
