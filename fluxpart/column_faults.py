@@ -1220,11 +1220,9 @@ _ZERO_RUNS = 3
 #: whole daily cycle, over which the soil's damped and delayed cycle parts from the air's
 #: (Campbell & Norman 1998, ch. 8 (m)).
 SAME_TEMPERATURE_DAYS = 1.0
-#: Distinct values a run of equal records needs, as a share of its records (and at least
-#: _SAME_MIN_DISTINCT): two columns at one value (a soil and an air both at 0 °C in a thaw
-#: written to whole degrees, or two dead probes) are not a copy of a moving temperature.
-#: Our choice.
-_SAME_DISTINCT_SHARE = 0.1
+#: Distinct values a run of equal records needs: two columns at one value or two (a soil
+#: and an air both at 0 °C in a thaw written to whole degrees, or two dead probes) are
+#: not a copy of a moving temperature. Our choice.
 _SAME_MIN_DISTINCT = 5
 
 
@@ -1296,7 +1294,7 @@ def same_temperature_columns(tair, tsoil, stamps, interval_minutes: float,
         if length < needed:
             continue
         values = a[positions[start:start + length]]
-        if np.unique(values).size < max(_SAME_MIN_DISTINCT, _SAME_DISTINCT_SHARE * length):
+        if np.unique(values).size < _SAME_MIN_DISTINCT:
             continue
         runs.append((int(positions[start]), int(positions[start + length - 1]), int(length)))
     if not runs:
