@@ -62,7 +62,7 @@ __all__ = ["GAPLESS_DAYS", "SOIL_RANGE_RATIO", "censored_nee", "delayed_tair",
            "delayed_tair_in_a_year",
            "dew_point_as_tair", "flag_as_measurement", "gapless_nee", "interpolated_nee",
            "months_rising_with_light", "nee_day_shift", "nee_lag", "storage_in_turbulent_flux",
-           "shaded_rg", "swapped_temperatures", "tair_lag", "values_written_twice",
+           "same_temperature_columns", "shaded_rg", "swapped_temperatures", "tair_lag", "values_written_twice",
            "vapour_pressure_as_vpd", "zero_coded_temperature"]
 
 #: Ratio of the soil column's to the air column's median daily temperature range above
@@ -1212,6 +1212,106 @@ _ZERO_JUMP = 5.0
 #: Runs of such zeros needed before the column is named (a single one could be a typo or
 #: a reboot). Our choice.
 _ZERO_RUNS = 3
+
+
+#: Records per day of consecutive records in which the air and soil temperature columns
+#: must read the same value (to the coarser column's written resolution) to be named as one
+#: sensor written twice [days] (round mistakes24). Our choice: a day of records holds a
+#: whole daily cycle, over which the soil's damped and delayed cycle parts from the air's
+#: (Campbell & Norman 1998, ch. 8 (m)).
+SAME_TEMPERATURE_DAYS = 1.0
+#: Distinct values a run of equal records needs: two columns at one value or two (a soil
+#: and an air both at 0 °C in a thaw written to whole degrees, or two dead probes) are
+#: not a copy of a moving temperature. Our choice.
+_SAME_MIN_DISTINCT = 5
+
+
+def _resolution(values: np.ndarray) -> float:
+    """The smallest step between the distinct present values of a column [its unit]."""
+    distinct = np.unique(values[np.isfinite(values)])
+    steps = np.diff(distinct)
+    steps = steps[steps > 1e-9]
+    return float(steps.min()) if steps.size else 0.0
+
+
+def same_temperature_columns(tair, tsoil, stamps, interval_minutes: float,
+                             columns=None) -> str | None:
+    """A message where air and soil temperature read the same value for a day or more.
+
+    Parameters
+    ----------
+    tair, tsoil : array_like
+        Air and soil temperature of each record [°C] (NaN = missing), consecutive
+        records of one interval.
+    stamps : pandas.DatetimeIndex
+        Interval starts of the records, to name the runs.
+    interval_minutes : float
+        Record interval [min].
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where no run of :data:`SAME_TEMPERATURE_DAYS` of records
+        with both present reads equal (within half the coarser column's written
+        resolution) with enough distinct values.
+
+    Notes
+    -----
+    Air at screen height and soil a few centimetres down are two media: conduction damps
+    the soil's daily cycle by exp(-z / d) and delays it by z / d radians (damping depth d
+    about 0.1 m; Campbell & Norman 1998, ch. 8 (m)), so the two columns cross twice a day
+    and part again, and two probes read to 0.01-0.1 K agree in their last digit only by
+    chance, for a record or a few. A day of consecutive records equal value for value,
+    through a moving daily cycle, is one sensor written under both headers: a logger
+    program mapping one channel twice, or a column copied over the other in a spreadsheet
+    after a probe failed. Nothing else sees it: the copy passes every range, and a copy
+    of the air as soil makes the soil swing like the air, which the swap rule
+    (:func:`swapped_temperatures`) does not call swapped. On the invented grassland
+    example the air column overwritten with the soil's from July moved nighttime GPP and
+    Reco by -120 g C m-2 and daytime GPP by -120 g C m-2, named only as a disagreement of
+    the two partitionings about the respiration temperature.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 8 (m).
+    """
+    a = np.asarray(tair, dtype=float)
+    b = np.asarray(tsoil, dtype=float)
+    both = np.isfinite(a) & np.isfinite(b)
+    per_day = 1440.0 / float(interval_minutes)
+    needed = int(np.ceil(SAME_TEMPERATURE_DAYS * per_day))
+    if int(both.sum()) < needed:
+        return None
+    tolerance = 0.5 * max(_resolution(a), _resolution(b)) + 1e-9
+    positions = np.flatnonzero(both)
+    equal = np.abs(a[positions] - b[positions]) <= tolerance
+    starts, lengths = gap_runs(equal)
+    runs = []
+    for start, length in zip(starts, lengths, strict=True):
+        if length < needed:
+            continue
+        values = a[positions[start:start + length]]
+        if np.unique(values).size < _SAME_MIN_DISTINCT:
+            continue
+        runs.append((int(positions[start]), int(positions[start + length - 1]), int(length)))
+    if not runs:
+        return None
+    names = columns or {}
+    first, last, _ = max(runs, key=lambda run: run[2])
+    records = sum(run[2] for run in runs)
+    more = f" in {len(runs)} runs" if len(runs) > 1 else ""
+    index = pd.DatetimeIndex(stamps)
+    return (f"air temperature (column {names.get('tair', 'tair')!r}) and soil temperature "
+            f"(column {names.get('tsoil', 'tsoil')!r}) read the same value, record for "
+            f"record, in {records} records{more} (the longest "
+            f"{index[first]:%Y-%m-%d %H:%M} .. {index[last]:%Y-%m-%d %H:%M}): the soil's "
+            "daily cycle is damped and delayed below the air's, so two probes never agree "
+            "so long; one sensor is written under both headers (a logger channel mapped "
+            "twice, or a column copied over the other): map each column to its own sensor, "
+            "or blank the copied values in a copy of the file")
 
 
 def zero_coded_temperature(values, name: str, stamps=None, columns=None) -> str | None:

@@ -53,6 +53,7 @@ from . import (
     uncertainty,
     unit_checks,
     ustar,
+    ustar_fixed,
     ustar_seasonal,
 )
 from ._validate import unique_columns
@@ -710,6 +711,14 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     unused = ustar.unused_threshold_note(ustar_table, config.ustar_threshold,
                                          config.ustar_method, Config().ustar_threshold)
     warnings.extend([unused] if unused else [])
+    if config.ustar_method == "fixed":
+        # a fixed threshold the night records reject as too low (round mistakes24)
+        low = ustar_fixed.fixed_threshold_note(
+            frame.index, screened["nee"].to_numpy(), screened["ustar"].to_numpy(),
+            screened["tair"].to_numpy(), is_night, site.latitude, config.ustar_threshold,
+            config, ustar.CANOPY_FLOORS[site.canopy] if config.ustar_min_threshold is None
+            else config.ustar_min_threshold)
+        warnings.extend([low] if low else [])
     warnings.extend(settings_notes.ignored_settings(config))
 
     filled_drivers = gapfill.fill_drivers(

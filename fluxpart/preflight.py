@@ -39,6 +39,8 @@ a day or more of records repeating        input (repeated records)            no
 earlier ones in every variable
 soil temperature swinging more than the   input (tair, tsoil)                 no
 air (columns swapped)
+air and soil temperature equal, record    input (tair = tsoil)                no
+for record, for a day (one sensor twice)
 NEE changing with Rg whole records        input (nee)                         no
 earlier or later (column shifted)
 NEE changing with Rg whole days earlier   input (nee days)                    no
@@ -98,6 +100,7 @@ from .column_faults import (
     nee_lag,
     nee_shift_from_month,
     rg_blank_in_the_dark,
+    same_temperature_columns,
     shaded_rg,
     swapped_temperatures,
     swapped_temperatures_in_months,
@@ -370,6 +373,12 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                                   index, interval_minutes, names)
         if text:
             findings.append(Finding("input (tair, tsoil)", text, False))
+        # one sensor written under both headers (round mistakes24)
+        text = same_temperature_columns(screened["tair"].to_numpy(dtype=float),
+                                        screened["tsoil"].to_numpy(dtype=float),
+                                        index, interval_minutes, names)
+        if text:
+            findings.append(Finding("input (tair = tsoil)", text, False))
     if {"nee", "rg"} <= set(screened.columns):
         # a shift of hours first (round mistakes23): where one beyond two hours is clearly
         # best, nee_lag would name only the widest of its own (two hours)

@@ -31,6 +31,7 @@ from fluxpart.column_faults import (
     nee_lag,
     nee_shift_from_month,
     rg_blank_in_the_dark,
+    same_temperature_columns,
     shaded_rg,
     storage_in_turbulent_flux,
     swapped_temperatures,
@@ -298,6 +299,47 @@ def test_rg_written_twice_is_judged_by_day():
     assert [f.stage for f in _written_twice(frame, potential, STEP)] == ["input (rg twice)"]
     frame = pd.DataFrame({"rg": rg, "nee": np.repeat(nee[::2], 2)}, index=index)
     assert [f.stage for f in _written_twice(frame, potential, STEP)] == ["input (nee twice)"]
+
+
+def test_one_sensor_written_as_air_and_soil_is_named():
+    # known-truth recovery on the analytic soil (heat conduction damps and delays the
+    # soil's daily cycle, Campbell & Norman 1998, ch. 8 (m)): written to 0.01 K like a
+    # logger, the two columns agree in a record or a few by chance, never for a day; the
+    # air column overwritten with the soil's from June (a probe lost and the soil's
+    # channel mapped twice) is named with its start (round mistakes24: on the example
+    # this moved nighttime GPP and Reco by -120 g C m-2, named only by the partitionings'
+    # disagreement about the respiration temperature)
+    air, soil = (np.round(x, 2) for x in temperatures(0.05))
+    stamps = pd.date_range("2021-03-01", periods=air.size, freq=f"{STEP}min")
+    assert np.sum(air == soil) > 0                          # chance agreements do occur
+    assert same_temperature_columns(air, soil, stamps, STEP) is None
+    late = stamps >= "2021-06-01"
+    tair = np.where(late, soil, air)
+    text = same_temperature_columns(tair, soil, stamps, STEP,
+                                    columns={"tair": "t_a", "tsoil": "t_s"})
+    assert text is not None and "'t_a'" in text and "'t_s'" in text
+    assert f"in {int(late.sum())} records" in text and "2021-06-01 00:00" in text
+    # the soil overwritten with the air (the other direction) is named alike
+    assert same_temperature_columns(air, np.where(late, air, soil), stamps, STEP)
+    # half a day of it is not (the rule asks for a day of records)
+    part = (stamps >= "2021-06-01") & (stamps < "2021-06-01 12:00")
+    assert same_temperature_columns(np.where(part, soil, air), soil, stamps, STEP) is None
+    # the preflight names it beside no other column fault
+    frame = pd.DataFrame({"tair": tair, "tsoil": soil}, index=stamps)
+    assert [f.stage for f in _column_faults(frame, None, STEP)] == ["input (tair = tsoil)"]
+
+
+def test_air_and_soil_at_one_value_or_to_whole_degrees_are_quiet():
+    # a thaw holds soil and air at 0 °C for days (the zero curtain, Campbell & Norman
+    # 1998, ch. 8 (m)): at whole degrees both columns read 0, which is no copy
+    air, soil = temperatures(0.05)
+    stamps = pd.date_range("2021-03-01", periods=air.size, freq=f"{STEP}min")
+    thaw = (stamps >= "2021-04-01") & (stamps < "2021-04-05")
+    a, b = np.round(np.where(thaw, 0.2, air)), np.round(np.where(thaw, -0.1, soil))
+    assert np.all(a[thaw] == b[thaw])
+    assert same_temperature_columns(a, b, stamps, STEP) is None
+    # the whole record written to whole degrees: chance agreements stay short
+    assert same_temperature_columns(np.round(air), np.round(soil), stamps, STEP) is None
 
 
 def test_preflight_names_both_faults():

@@ -1,0 +1,148 @@
+"""A fixed u* threshold that the night records show to be too low.
+
+With ``ustar_method = "fixed"`` every year is filtered at ``ustar_threshold``
+without looking at the data. A value below the turbulence at which the night
+NEE stops rising with u* keeps nights whose flux was lost to storage and
+drainage as measured: they serve as donors of the night gaps and enter both
+respiration fits, and annual NEE comes out too negative (Goulden et al. 1996
+(m); Papale et al. 2006 (m)). On the invented grassland example (0.156 m s-1
+detected) ``ustar_threshold = 0.02`` moved NEE by -36.5, nighttime Reco by
+-111.8 and nighttime GPP by -75.3 g C m-2 (round mistakes24), with no word but
+that the fixed threshold has no bootstrap.
+
+:func:`fixed_threshold_note` runs the configured detector on the same records
+(the run's moving point settings, with a bootstrap of 100 draws) and names the years whose
+fixed threshold lies below the detector's 5th bootstrap percentile and below the
+detected threshold by more than the factor the seasonal rule uses
+(:data:`fluxpart.ustar_seasonal.SEASONAL_MARGIN`). The fixed threshold is still
+used: it may be a site's published value, and a threshold set too high costs
+data only, so only a low one is named.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+from . import ustar
+from .ustar_seasonal import SEASONAL_MARGIN
+
+__all__ = ["fixed_threshold_note", "years_below_detected"]
+
+#: Bootstrap resamples of the check's detection: 100, Papale et al. (2006) (m), the
+#: default of ``Config.ustar_bootstrap_draws``, which a fixed run does not read.
+_DRAWS = 100
+
+
+def years_below_detected(fixed: float, annual: pd.DataFrame,
+                         margin: float = SEASONAL_MARGIN) -> pd.DataFrame:
+    """The years whose detected u* threshold clearly exceeds a fixed one.
+
+    Parameters
+    ----------
+    fixed : float
+        The fixed threshold [m s-1].
+    annual : pandas.DataFrame
+        Per year ``year``, ``threshold`` and ``threshold_p05`` [m s-1], as in
+        :attr:`fluxpart.ustar.UstarResult.annual`.
+    margin : float, optional
+        Factor by which the detected threshold must exceed `fixed` [1];
+        default :data:`fluxpart.ustar_seasonal.SEASONAL_MARGIN` (1.2).
+
+    Returns
+    -------
+    pandas.DataFrame
+        The rows of `annual` whose ``threshold_p05`` lies above `fixed` and whose
+        ``threshold`` lies above `margin` times it; empty where none does or the
+        bootstrap gave no percentile.
+
+    Notes
+    -----
+    The bootstrap 5th percentile of the detected threshold (Papale et al. 2006 (m))
+    above the fixed value: in fewer than 5 % of resampled night records would the
+    night NEE stop rising with u* at or below it. The margin keeps a fixed value
+    close to a precisely detected one quiet (a site's published threshold that
+    differs by a few hundredths).
+
+    References
+    ----------
+    Papale, D., et al. (2006). Towards a standardized processing of Net Ecosystem
+    Exchange measured with eddy covariance technique: algorithms and uncertainty
+    estimation. Biogeosciences, 3, 571-583 (m).
+    """
+    if not len(annual) or "threshold_p05" not in annual.columns:
+        return annual.iloc[:0]
+    threshold = annual["threshold"].astype(float)
+    lower = annual["threshold_p05"].astype(float)
+    below = (lower > fixed) & (threshold > margin * fixed)
+    return annual[below.fillna(False).to_numpy(dtype=bool)]
+
+
+def fixed_threshold_note(index, nee, ustar_values, tair, is_night, latitude: float,
+                         fixed: float, config, floor: float) -> str | None:
+    """A warning where the night records reject a fixed u* threshold as too low.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Interval starts in local standard time.
+    nee : array_like
+        NEE screened for range, flag and spikes, not yet for u* [µmol m-2 s-1].
+    ustar_values : array_like
+        Friction velocity [m s-1].
+    tair : array_like
+        Air temperature [°C].
+    is_night : array_like of bool
+        Night records.
+    latitude : float
+        Site latitude [degrees north].
+    fixed : float
+        ``Config.ustar_threshold`` [m s-1].
+    config : fluxpart.Config
+        The run's settings (the moving point test's and the seed).
+    floor : float
+        Floor of a detected threshold [m s-1] (the canopy's or the configured one).
+
+    Returns
+    -------
+    str or None
+        The text naming each such year with its detected threshold and 5-95 % range;
+        None where no year qualifies or no threshold could be detected.
+
+    Notes
+    -----
+    The moving point test of Reichstein et al. (2005) with the bootstrap of Papale
+    et al. (2006), as the run would use without ``ustar_method = "fixed"``; see
+    :func:`years_below_detected` for the rule. The note cannot change a number of
+    the run: the fixed threshold filters as set.
+
+    References
+    ----------
+    Goulden, M. L., et al. (1996). Measurements of carbon sequestration by long-term
+    eddy covariance: methods and a critical evaluation of accuracy. Global Change
+    Biology, 2, 169-182 (m).
+    Reichstein, M., et al. (2005). On the separation of net ecosystem exchange into
+    assimilation and ecosystem respiration. Global Change Biology 11, 1424-1439 (m).
+    Papale, D., et al. (2006), as in :func:`years_below_detected`.
+    """
+    found = ustar.detect_threshold(
+        index, np.asarray(nee, dtype=float), np.asarray(ustar_values, dtype=float),
+        np.asarray(tair, dtype=float), is_night, latitude, detector="moving_point",
+        draws=_DRAWS, seed=config.seed, min_threshold=floor,
+        temperature_classes=config.ustar_temperature_classes,
+        ustar_classes=config.ustar_classes, plateau_share=config.ustar_plateau_share,
+        correlation_limit=config.ustar_correlation_limit,
+        min_resolution=config.ustar_min_resolution, annual=config.ustar_annual,
+        plateau_reference=config.ustar_plateau_reference)
+    rows = years_below_detected(fixed, found.annual)
+    if not len(rows):
+        return None
+    years = "; ".join(
+        f"{int(row.year)}: {row.threshold:.3f} (5-95 %: {row.threshold_p05:.3f}-"
+        f"{row.threshold_p95:.3f})" for row in rows.itertuples())
+    return (f"u* threshold: ustar_method = \"fixed\" filters at ustar_threshold = "
+            f"{fixed:g} m s-1, but the night NEE keeps rising with u* above it (moving "
+            f"point test with its bootstrap, m s-1: {years}): nights with flux lost to "
+            "storage and drainage are kept as measured and bias NEE low and Reco low; "
+            "the fixed value is used as set; check it, or remove ustar_method = "
+            "\"fixed\" to filter at the detected threshold")

@@ -1,0 +1,68 @@
+"""A fixed u* threshold the night records reject as too low (fluxpart.ustar_fixed).
+
+Known-truth recovery on invented site-years: ``fluxpart.scenarios`` plants a u* threshold
+below which the measured night flux falls short of the true one (the storage and drainage
+loss of weak turbulence, Goulden et al. 1996 (m)). A fixed threshold at the planted value
+must stay quiet; one well below it must be named, since the moving point test with its
+bootstrap (Reichstein et al. 2005; Papale et al. 2006 (m)) finds the night NEE still
+rising with u* above it.
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart import scenarios, solar, ustar
+from fluxpart.config import Config
+from fluxpart.pipeline import process
+from fluxpart.ustar_fixed import fixed_threshold_note, years_below_detected
+
+
+def _site_year(seed):
+    site_year = scenarios.generate(seed)
+    frame, site = site_year.frame, site_year.site
+    potential = solar.potential_radiation(frame.index, site.latitude, site.longitude,
+                                          site.utc_offset)
+    is_night = solar.night_mask(frame["rg"].to_numpy(), potential, 10.0)
+    planted = scenarios.draw(seed).parameters["ustar_threshold"]
+    return site_year, is_night, planted
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_a_fixed_threshold_at_the_planted_one_is_quiet_and_one_far_below_is_named(seed):
+    site_year, is_night, planted = _site_year(seed)
+    frame, site = site_year.frame, site_year.site
+    arguments = (frame.index, frame["nee"], frame["ustar"], frame["tair"], is_night,
+                 site.latitude)
+    floor = ustar.CANOPY_FLOORS[site.canopy]
+    assert fixed_threshold_note(*arguments, planted, Config(), floor) is None
+    text = fixed_threshold_note(*arguments, 0.4 * planted, Config(), floor)
+    assert text is not None and f"ustar_threshold = {0.4 * planted:g}" in text
+    assert f"{frame.index[0].year}: " in text and "used as set" in text
+
+
+def test_the_rule_needs_the_bootstrap_range_and_the_margin_above_the_fixed_value():
+    # the rule itself on a table (the 5th percentile above the fixed value and the
+    # detected threshold above 1.2 times it, the margin of fluxpart.ustar_seasonal)
+    annual = pd.DataFrame({"year": [2020, 2021, 2022],
+                           "threshold": [0.30, 0.22, 0.30],
+                           "threshold_p05": [0.26, 0.21, 0.19],
+                           "threshold_p95": [0.34, 0.24, 0.40]})
+    below = years_below_detected(0.2, annual)
+    assert below["year"].tolist() == [2020]         # 2021: within 1.2; 2022: p05 below
+    assert years_below_detected(0.2, annual.assign(threshold_p05=np.nan)).empty
+    assert years_below_detected(0.2, annual.drop(columns="threshold_p05")).empty
+
+
+def test_the_run_names_a_fixed_threshold_below_the_detected_one():
+    # known-truth recovery through process(): generated seed 3, fixed at a third of the
+    # planted threshold; the fixed value is still the one filtering (the table says so)
+    site_year, _, planted = _site_year(3)
+    low = Config(ustar_method="fixed", ustar_threshold=round(planted / 3, 3), random_error_draws=50)
+    result = process(site_year.frame, site_year.site, low)
+    named = [w for w in result.warnings if w.startswith("u* threshold: ustar_method")]
+    assert len(named) == 1
+    assert (result.ustar["threshold"] == low.ustar_threshold).all()
+    quiet = process(site_year.frame, site_year.site,
+                    Config(ustar_method="fixed", ustar_threshold=planted, random_error_draws=50))
+    assert not [w for w in quiet.warnings if w.startswith("u* threshold: ustar_method")]
