@@ -87,6 +87,7 @@ from .unit_checks import (
     mixup_messages,
     most_repeated,
 )
+from .unit_labels import relabelled_files, relabelled_months_message
 from .variables import (
     PPFD_PER_RG,
     READER_VARIABLES,
@@ -886,6 +887,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                                          starts, combined["sources"], strict=False)
             if split:
                 refusals[name] = split
+    refusals |= _relabelled_refusals(suspicions, refusals, parts, mapping, units, starts,
+                                     combined["sources"])
     for name, message in refusals.items():
         message = _unit_changed_within(name, message, values[name], converted, units,
                                        mapping, interval_minutes, potential, missing, starts,
@@ -1420,6 +1423,29 @@ def _other_unit(name: str, message: str) -> str | None:
         return suggested.group(2) if suggested.group(1) == name else None
     named = [unit for unit in units_for(name) if f"({unit})" in message]
     return max(named, key=len) if named else None
+
+
+def _relabelled_refusals(suspicions: list, refusals: dict, parts: list, mapping: dict,
+                         units: dict, starts: pd.DatetimeIndex, sources) -> dict:
+    """Refusals where the months that look like another unit are the files whose units
+    line writes another unit (:mod:`fluxpart.unit_labels`); {} where none."""
+    found = {}
+    for warning in suspicions:
+        name = _warned_variable(warning, mapping)
+        if name is None or name in refusals or name in found:
+            continue
+        declared = units.get(name)
+        read_key = (same_unit_key(name, declared) if declared is not None
+                    else ("unit", (1.0, 0.0), False))
+        labels = [(part["source"], part["header_rows"].get(name, (None, ()))[1])
+                  for part in parts]
+        relabelled = relabelled_files(name, labels, read_key)
+        message = relabelled_months_message(name, str(mapping[name]), warning,
+                                            declared or units_for(name)[0], relabelled,
+                                            starts, sources)
+        if message:
+            found[name] = message
+    return found
 
 
 def _warned_variable(warning: str, mapping: dict) -> str | None:
