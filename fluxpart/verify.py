@@ -1054,6 +1054,14 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
                                          f"the manifest {broken.split(';')[0]}; point the "
                                          "link at the file again, or give the file's "
                                          "location with --input")
+                if path is not None and path.exists():
+                    # a folder or a pipe now at the recorded name was "does not exist",
+                    # though the auditor sees it there
+                    kind = "a folder" if path.is_dir() else "a pipe or a device"
+                    raise InputFileError(f"verify: the input file {str(path)!r} recorded in "
+                                         f"the manifest is now {kind}, not a plain file (the "
+                                         "result was computed from a file of that name): put "
+                                         "the file back, or give its location with --input")
                 raise InputFileError(f"verify: the input file {str(path)!r} recorded in the "
                                      "manifest (relative to the result folder) does not exist; "
                                      "give its new location with --input")

@@ -207,3 +207,26 @@ def test_output_piped_into_head_keeps_the_verdict(bundle):
     process.stdout.close()          # closed before verify's first line (~1 s of work)
     assert process.wait(timeout=300) == 0
     assert process.stderr.read() == b""
+
+
+# --------------------------------------------------------------------------- verify's input
+
+@pytest.mark.parametrize("kind, named", [("folder", "is now a folder"),
+                                         ("fifo", "is now a pipe or a device")])
+def test_verify_names_a_folder_or_pipe_where_the_input_was(bundle, tmp_path, capsys, kind,
+                                                          named):
+    """The recorded input's name now a folder (an unpacked archive named like the file)
+    or a named pipe (POSIX file types, stat(2) S_ISDIR / S_ISFIFO (m)): verify said the
+    file "does not exist" although the auditor sees an entry of that name. Now it names
+    what is there, exit 2, the result folder untouched."""
+    copy = tmp_path / "copy"
+    shutil.copytree(bundle, copy)
+    (copy / "tower.csv").unlink()
+    if kind == "folder":
+        (copy / "tower.csv").mkdir()
+    else:
+        os.mkfifo(copy / "tower.csv")
+    assert main(["verify", str(copy / "out")]) == 2
+    line = _one_error_line(capsys)
+    assert named in line and "tower.csv" in line and "does not exist" not in line
+    assert "--input" in line
