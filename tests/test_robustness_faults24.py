@@ -230,3 +230,32 @@ def test_verify_names_a_folder_or_pipe_where_the_input_was(bundle, tmp_path, cap
     line = _one_error_line(capsys)
     assert named in line and "tower.csv" in line and "does not exist" not in line
     assert "--input" in line
+
+
+# --------------------------------------------------------------------------- unreadable input
+
+def test_an_unreadable_input_is_named_without_python_s_error_text(tmp_path, monkeypatch):
+    """An input whose permission is refused (open(2): EACCES (m); tested by a refused
+    open, since root, which these tests may run as, ignores modes): ``run`` and
+    ``check`` said "cannot be read: [Errno 13] Permission denied: 'tower.csv'" (Python's
+    ``str`` of an OSError, naming the file twice); now the system's reason and the fix."""
+    import errno
+
+    from fluxpart import io as fio
+    from fluxpart.errors import InputFileError
+
+    data = tmp_path / "tower.csv"
+    data.write_text("a,b\n1,2\n", encoding="utf-8")
+
+    def refused(path, *args, **kwargs):
+        raise PermissionError(errno.EACCES, os.strerror(errno.EACCES), str(path))
+
+    monkeypatch.setattr(fio, "open", refused, raising=False)
+    with pytest.raises(InputFileError) as raised:
+        fio._file_sha256(data)
+    message = str(raised.value)
+    assert "[Errno" not in message and message.count("tower.csv") == 1
+    assert os.strerror(errno.EACCES) in message and "readable by this user" in message
+    # an I/O error of the medium is named as such, with no permission fix
+    other = fio._cannot_read(data, OSError(errno.EIO, os.strerror(errno.EIO), str(data)))
+    assert os.strerror(errno.EIO) in other and "readable by this user" not in other
