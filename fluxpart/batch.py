@@ -89,6 +89,7 @@ from .store import (
     read_table,
     reader_attrs,
     remove_stale,
+    require_owner_access,
     set_mode,
     unreadable,
     write_table,
@@ -1083,6 +1084,7 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
              else check_site_time_limit(site_time_limit, "--site-time-limit"))
     out = (Path(out) if out is not None else network.out).resolve()
     _check_out(out)
+    require_owner_access()           # before a folder or a cluster is made
     _check_cluster_options(scheduler, workers)   # a usage error leaves no new folder
     _make_writable_out(out)          # before the cluster starts and any site is computed
     _sweep_leftovers(out, started)

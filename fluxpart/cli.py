@@ -614,6 +614,12 @@ def _install_stop_handlers() -> dict:
     return replaced
 
 
+#: Errors of a write that mean its output is lost where it goes (write(2) (m)): a full
+#: disk, a full quota, a file-size limit (``ulimit -f``; Python ignores SIGXFSZ), an I/O
+#: error of the device or of a hung-up terminal.
+_OUTPUT_LOST = {errno.ENOSPC, errno.EDQUOT, errno.EFBIG, errno.EIO}
+
+
 class _QuietWhenClosed:
     """Standard output that goes quiet once its reader has gone (``| head`` closed early).
 
@@ -626,6 +632,9 @@ class _QuietWhenClosed:
     def __init__(self, stream):
         self._stream = stream
         self._closed = False
+        #: the error that lost part of the output where it goes (a full disk, a file-size
+        #: limit, an I/O error: ``verify > log`` on a full disk); None while none was lost
+        self.lost: OSError | None = None
 
     def write(self, text):
         if not self._closed:
@@ -633,6 +642,8 @@ class _QuietWhenClosed:
                 return self._stream.write(text)
             except BrokenPipeError:
                 self._quiet()
+            except OSError as error:
+                self._lose(error)
         return len(text)
 
     def flush(self):
@@ -641,6 +652,25 @@ class _QuietWhenClosed:
                 self._stream.flush()
             except BrokenPipeError:
                 self._quiet()
+            except OSError as error:
+                self._lose(error)
+
+    def _lose(self, error: OSError):
+        """Output refused by the place it goes (ENOSPC, EDQUOT, EFBIG, EIO: write(2) (m)).
+
+        It raised out of the command's first ``print`` with a traceback and exit 1 (which
+        for ``verify`` reads "NOT reproduced"), or, held in the buffer, made the
+        interpreter's last flush fail (exit 120) after a complete result. The command now
+        runs to its end with its output discarded and :func:`main` says so, exit 2.
+        """
+        if error.errno not in _OUTPUT_LOST:
+            raise error
+        self.lost = error
+        self._quiet()
+        try:
+            self._stream.flush()    # now into the null device: the buffer is emptied
+        except (OSError, ValueError):
+            pass
 
     def _quiet(self):
         self._closed = True
@@ -706,6 +736,24 @@ def _cwd_gone() -> bool:
     except FileNotFoundError:
         return True
     return False
+
+
+def _output_lost(error: OSError, command: str, code: int) -> int:
+    """Say that a command's standard output was lost (:class:`_QuietWhenClosed`); exit 2.
+
+    The line goes to standard error; where that is lost too nothing more can be said and
+    the status alone tells. The command's own status is named (for ``verify`` its
+    verdict: 0 reproduced, 1 not), so the trail an auditor kept is known incomplete.
+    """
+    try:
+        print(f"error: the output of fluxpart {command} could not be written to standard "
+              f"output ({error.strerror or error}); the command ran to its end with its own "
+              f"exit status {code}, but its report is lost: free space (or raise the "
+              "file-size limit, ulimit -f) where the output goes and run it again",
+              file=sys.stderr)
+    except OSError:
+        pass
+    return 2
 
 
 def _too_long(error: OSError) -> str:
@@ -776,7 +824,11 @@ def main(argv=None) -> int:
         with warnings.catch_warnings():
             # the commands print a result's warnings themselves, once, in their output
             warnings.simplefilter("ignore", FluxpartWarning)
-            return args.handler(args)
+            code = args.handler(args)
+        sys.stdout.flush()
+        if sys.stdout.lost is not None:
+            return _output_lost(sys.stdout.lost, args.command, code)
+        return code
     except FluxpartError as error:
         print(f"error: {error}", file=sys.stderr)
         if argv is None and getattr(error, "end_process", False):

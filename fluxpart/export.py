@@ -60,7 +60,7 @@ import pandas as pd
 
 from .errors import FluxpartError, InputFileError, OutputError
 from .manifest import recorded_paths
-from .store import file_mode, remove_stale, set_mode
+from .store import file_mode, remove_stale, require_owner_access, set_mode
 from .units import KG_CARBON_PER_UMOL
 
 __all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf",
@@ -591,6 +591,7 @@ def write_netcdf(result, path) -> Path:
 
         directory, result = Path(result), load(result)
     _check_target(path, result.provenance, directory)
+    require_owner_access()
     started = time.time()
     dataset = to_xarray(result)
     if directory is not None:

@@ -77,7 +77,14 @@ import pandas as pd
 
 from .errors import OutputError
 from .schema import TIME_CONVENTION, units_for_table
-from .store import _stored_index, file_mode, folder_mode, remove_stale, set_mode
+from .store import (
+    _stored_index,
+    file_mode,
+    folder_mode,
+    remove_stale,
+    require_owner_access,
+    set_mode,
+)
 
 __all__ = ["DESCRIPTION_PROPERTY", "METADATA_NAME", "UNIT_PROPERTY", "check_name", "check_target",
            "command_csv", "csv_tables", "offset_text", "write_csv"]
@@ -367,6 +374,7 @@ def write_csv(result, folder) -> Path:
     """
     target = Path(folder)
     check_target(target)
+    require_owner_access()
     source, stored = None, False
     if isinstance(result, (str, os.PathLike)):
         from .export import _computed_by

@@ -1583,6 +1583,35 @@ def _refuse_or_warn(name: str, message: str, accept_units: tuple, warnings: list
 # --------------------------------------------------------------------------- files
 
 
+def _cannot_read(path: Path, error: OSError) -> str:
+    """One line for an input file that exists but cannot be read.
+
+    Python's own text of the error (``[Errno 13] Permission denied: 'tower.csv'``) named
+    the file twice and the number meant for programs; now the system's reason alone
+    (``strerror``) and, for a refused permission (EACCES, EPERM: open(2) (m)), the fix.
+
+    Parameters
+    ----------
+    path : pathlib.Path
+        The input file.
+    error : OSError
+        What reading it raised.
+
+    Returns
+    -------
+    str
+        The message, naming ``[input] path``'s file.
+
+    References
+    ----------
+    POSIX ``open(2)``: EACCES where a permission of the file or of a folder on its path
+    is refused (m).
+    """
+    fix = ("; make it and its folder readable by this user"
+           if error.errno in (errno.EACCES, errno.EPERM) else "")
+    return f"input file {str(path)!r} cannot be read: {error.strerror or error}{fix}"
+
+
 def _file_sha256(path: Path) -> str:
     """SHA-256 of an input file; a missing or unreadable file is an `InputFileError`."""
     _require_input_file(Path(path))
@@ -1592,7 +1621,7 @@ def _file_sha256(path: Path) -> str:
             for block in iter(lambda: handle.read(1 << 20), b""):
                 digest.update(block)
     except OSError as error:
-        raise InputFileError(f"input file {str(path)!r} cannot be read: {error}") from None
+        raise InputFileError(_cannot_read(path, error)) from None
     return digest.hexdigest()
 
 
@@ -1736,7 +1765,7 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
     try:
         data = path.read_bytes()
     except OSError as error:
-        raise InputFileError(f"input file {str(path)!r} cannot be read: {error}") from None
+        raise InputFileError(_cannot_read(path, error)) from None
     except MemoryError:
         raise InputFileError(_too_large(path)) from None
     data = _decompressed(data, path)

@@ -65,7 +65,7 @@ from .resultdir import (
     replace_refusal,
     swapped_in,
 )
-from .store import atomic_write_bytes
+from .store import atomic_write_bytes, require_owner_access
 from .uncertainty_parts import PART_LABELS, uncertainty_parts
 from .units import CARBON_UNIT, FLUX_UNIT, T_CO2_HA_PER_G_C_M2, display_unit
 
@@ -1122,6 +1122,7 @@ def build_report(directory, out=None, *, progress=None) -> Path:
     directory = Path(directory)
     out = directory / "report" if out is None else Path(out)
     _check_report_folder(out)
+    require_owner_access()
     try:
         # staging folders of a report killed earlier (in the result folder, they would make
         # it fail its manifest check below)

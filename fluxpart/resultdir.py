@@ -74,6 +74,7 @@ from .store import (
     file_sha256,
     folder_mode,
     read_table,
+    require_owner_access,
     set_mode,
     table_shape,
     unreadable,
@@ -733,6 +734,7 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
         result folder of another site, not writable, or locked by another writer for longer than `lock_timeout`.
         Nothing is changed in that case.
     """
+    require_owner_access()           # before anything is made beside the folder
     directory = _absolute(directory)
     undecodable = undecodable_paths(provenance if isinstance(provenance, dict) else {},
                                     directory)

@@ -46,7 +46,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from .errors import InputFileError
+from .errors import InputFileError, OutputError
 
 __all__ = ["PANDAS_ATTRS_KEY", "atomic_write_bytes", "column_units", "file_mode", "file_sha256",
            "folder_mode", "parquet_source", "read_table", "reader_attrs", "remove_stale",
@@ -75,6 +75,37 @@ def _umask() -> int:
     mask = os.umask(0o022)      # elsewhere: set and restore (no other thread writes yet)
     os.umask(mask)
     return mask
+
+
+def require_owner_access() -> None:
+    """Refuse to write where the umask takes the owner's own access to what is written.
+
+    Every file and folder written takes its mode from the umask (:func:`file_mode`,
+    :func:`folder_mode`). A umask with any of the owner's bits (``0o700``: ``umask 277``,
+    ``umask 777``, a service's or a job script's mistake) gives the folder just made no
+    write or search permission for its own maker, so every write into it failed with
+    "Permission denied" on a folder that looked writable, the message naming free space
+    or another place as the fix, and an unremovable ``d---------`` staging folder stayed
+    behind; where it let the files be written (root), the owner could not read them back.
+
+    Raises
+    ------
+    OutputError
+        If ``umask & 0o700`` is not zero, naming the umask and a usual one.
+
+    References
+    ----------
+    POSIX ``umask(2)`` and ``mkdir(2)``: the mode of a new file or folder is the mode
+    asked for less the bits of the mask (m); ``022`` and ``077`` are the usual masks
+    (common practice).
+    """
+    mask = _umask()
+    if mask & 0o700:
+        raise OutputError(
+            f"the process's umask is {mask:04o}: it takes the owner's own read, write or "
+            "search permission from every file and folder written, so nothing could be "
+            "written or read back; set a usual umask (umask 022, or 077 for private files) "
+            "and run again")
 
 
 def file_mode() -> int:

@@ -802,7 +802,38 @@ def result_identity(manifest: dict) -> str:
     code = manifest.get("code") if isinstance(manifest.get("code"), dict) else {}
     if code.get("version"):
         parts.append(f"written by fluxpart {code['version']}")
-    return "; ".join(parts)
+    return printable_line("; ".join(parts))
+
+
+def printable_line(text: str) -> str:
+    """`text` with every character that is not printable written as an escape.
+
+    A file name may hold a line break, a tab or a terminal control sequence (``ESC``,
+    ``\\x1b[2J`` clears the screen), and a manifest edited by hand may hold them in any
+    field: printed as they are, they split verify's one-line ``result:`` summary or
+    rewrote the auditor's terminal. Printable characters of any script stay as they are.
+
+    Parameters
+    ----------
+    text : str
+        Text from a manifest (names, the seed, the release).
+
+    Returns
+    -------
+    str
+        One line: each non-printable character as ``\\xNN``, ``\\uNNNN`` or
+        ``\\UNNNNNNNN`` (Python's escapes for its code point).
+
+    References
+    ----------
+    Python documentation, ``str.isprintable`` (Unicode categories "Other" and
+    "Separator" other than the space are not printable) (m); ECMA-48 control functions,
+    ESC (0x1B) introducing control sequences (m).
+    """
+    if text.isprintable():
+        return text
+    return "".join(c if c.isprintable() else c.encode("unicode_escape").decode("ascii")
+                   for c in text)
 
 
 # --------------------------------------------------------------------------- inputs
@@ -1023,6 +1054,14 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
                                          f"the manifest {broken.split(';')[0]}; point the "
                                          "link at the file again, or give the file's "
                                          "location with --input")
+                if path is not None and path.exists():
+                    # a folder or a pipe now at the recorded name was "does not exist",
+                    # though the auditor sees it there
+                    kind = "a folder" if path.is_dir() else "a pipe or a device"
+                    raise InputFileError(f"verify: the input file {str(path)!r} recorded in "
+                                         f"the manifest is now {kind}, not a plain file (the "
+                                         "result was computed from a file of that name): put "
+                                         "the file back, or give its location with --input")
                 raise InputFileError(f"verify: the input file {str(path)!r} recorded in the "
                                      "manifest (relative to the result folder) does not exist; "
                                      "give its new location with --input")
