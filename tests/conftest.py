@@ -39,6 +39,19 @@ def written_demo(tmp_path_factory):
     return result, folder
 
 
+@pytest.fixture(scope="module")
+def bundle(tmp_path_factory):
+    """A pristine bundle for the requesting module: site config `site.toml`, input
+    `tower.csv` (:func:`bundles.make_bundle`) and its result folder `out` beside them."""
+    from bundles import make_bundle
+
+    from fluxpart.pipeline import process_site_config
+
+    root = tmp_path_factory.mktemp("bundle")
+    process_site_config(make_bundle(root)).write(root / "out")
+    return root
+
+
 @pytest.fixture
 def copy(bundle, tmp_path):
     """A private copy of the requesting module's `bundle` (site config, input and result

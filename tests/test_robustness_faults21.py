@@ -12,19 +12,8 @@ no Greek capital delta (Unicode's cp1252 mapping table).
 import shutil
 
 import pytest
-from bundles import make_bundle
 
 from fluxpart.cli import main
-from fluxpart.pipeline import process_site_config
-
-
-@pytest.fixture(scope="module")
-def bundle(tmp_path_factory):
-    """A pristine bundle: site config, input and result folder `out` beside them."""
-    root = tmp_path_factory.mktemp("bundle")
-    config = make_bundle(root)
-    process_site_config(config).write(root / "out")
-    return root
 
 
 @pytest.fixture

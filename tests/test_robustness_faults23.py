@@ -30,17 +30,7 @@ from bundles import make_bundle
 
 from fluxpart import resultdir
 from fluxpart.cli import main
-from fluxpart.pipeline import process_site_config
 from fluxpart.verify import verify
-
-
-@pytest.fixture(scope="module")
-def bundle(tmp_path_factory):
-    """Site config `site.toml`, input `tower.csv` and its result folder `out`."""
-    root = tmp_path_factory.mktemp("bundle")
-    config = make_bundle(root)
-    process_site_config(config).write(root / "out")
-    return root
 
 
 def _copy(bundle, tmp_path) -> Path:

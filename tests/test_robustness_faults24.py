@@ -21,17 +21,7 @@ from bundles import make_bundle
 from fluxpart import store
 from fluxpart.cli import main
 from fluxpart.errors import OutputError
-from fluxpart.pipeline import process_site_config
 from fluxpart.verify import printable_line, result_identity
-
-
-@pytest.fixture(scope="module")
-def bundle(tmp_path_factory):
-    """Site config `site.toml`, input `tower.csv` and its result folder `out`."""
-    root = tmp_path_factory.mktemp("bundle")
-    config = make_bundle(root)
-    process_site_config(config).write(root / "out")
-    return root
 
 
 def _one_error_line(capsys) -> str:

@@ -30,15 +30,6 @@ from fluxpart.store import file_sha256, read_table
 from fluxpart.verify import ROUNDING_TOLERANCE, compare_tables, remove_dead_scratch, verify
 
 
-@pytest.fixture(scope="module")
-def bundle(tmp_path_factory):
-    """A pristine bundle: site config, input and result folder `out` beside them."""
-    root = tmp_path_factory.mktemp("bundle")
-    config = make_bundle(root)
-    process_site_config(config).write(root / "out")
-    return root
-
-
 def _edit_manifest(folder, change, reseal=False):
     path = folder / "manifest.json"
     manifest = json.loads(path.read_text(encoding="utf-8"))
