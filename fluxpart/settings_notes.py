@@ -2,7 +2,8 @@
 
 A setting written in ``[processing]`` reads as "this run uses it" to whoever wrote it and
 to whoever audits the config later. Some settings only act under one choice of another:
-the u* detectors' own parameters do nothing where the threshold is fixed, the moving
+the u* detectors' own parameters change no number where the threshold is fixed (a few
+still tune the warning that checks a fixed threshold for being too low), the moving
 point test's parameters do nothing under the change-point detector, and the bootstrap
 percentiles do nothing without bootstrap draws. Such a setting changed from its default
 passed without a word (round mistakes21: ``ustar_scenarios = [5, 50, 95]`` beside
@@ -17,17 +18,22 @@ from dataclasses import fields
 
 from .config import Config, setting_text
 
-__all__ = ["ignored_settings"]
+__all__ = ["FIXED_CHECK_READS", "ignored_settings"]
 
 #: Parameters of the moving point test only (Reichstein et al. 2005; Papale et al. 2006
 #: (m)), which :func:`fluxpart.ustar.detect_threshold` passes to that detector alone.
 MOVING_POINT_ONLY = ("ustar_classes", "ustar_plateau_share", "ustar_correlation_limit",
                      "ustar_min_resolution", "ustar_annual", "ustar_plateau_reference")
 
-#: Parameters of u* threshold detection and its bootstrap, unread where the threshold is
-#: fixed (``fluxpart.pipeline._ustar_thresholds`` returns before detecting).
+#: Parameters of u* threshold detection and its bootstrap, which change no number where
+#: the threshold is fixed (``fluxpart.pipeline._ustar_thresholds`` returns before detecting).
 DETECTION = ("ustar_temperature_classes", *MOVING_POINT_ONLY, "ustar_distinct_seasons",
              "ustar_min_threshold", "ustar_bootstrap_draws", "ustar_scenarios")
+
+#: The detection settings a fixed run still reads: :func:`fluxpart.ustar_fixed.fixed_threshold_note`
+#: runs the moving point test with them to name a fixed threshold the night records show
+#: too low (round mistakes24). They change that warning, never a number of the run.
+FIXED_CHECK_READS = ("ustar_temperature_classes", *MOVING_POINT_ONLY, "ustar_min_threshold")
 
 
 def _changed(config: Config, names) -> list:
@@ -59,7 +65,8 @@ def ignored_settings(config: Config) -> list:
     -------
     list of str
         At most one text: under ``ustar_method = "fixed"`` the detection and bootstrap
-        settings (the threshold is ``ustar_threshold`` [m s-1] for every year); under
+        settings (the threshold is ``ustar_threshold`` [m s-1] for every year; those in
+        :data:`FIXED_CHECK_READS` are named as tuning only the too-low check); under
         ``"change_point"`` the moving point test's own parameters; with
         ``ustar_bootstrap_draws = 0`` a non-empty ``ustar_scenarios``. Empty where no
         setting is so changed.
@@ -82,13 +89,17 @@ def ignored_settings(config: Config) -> list:
     method = config.ustar_method
     if method == "fixed":
         unused = _changed(config, DETECTION)
-        if unused:
-            return [f"settings: {_listed(config, unused)} {_verb(unused)} nothing: ustar_method = "
-                    f"\"fixed\" filters every year at ustar_threshold = "
-                    f"{setting_text(config.ustar_threshold)} m s-1 without detecting a "
-                    "threshold or drawing its bootstrap; remove the setting(s), or choose "
-                    "ustar_method = \"moving_point\" or \"change_point\" to use them"]
-        return []
+        if not unused:
+            return []
+        checked = [name for name in unused if name in FIXED_CHECK_READS]
+        check = ((f" ({_listed(config, checked)} only {'tune' if len(checked) > 1 else 'tunes'} "
+                  "the detection that checks the fixed value for being too low, a warning)")
+                 if checked else "")
+        return [f"settings: {_listed(config, unused)} {_verb(unused)} no number of the run: "
+                f"ustar_method = \"fixed\" filters every year at ustar_threshold = "
+                f"{setting_text(config.ustar_threshold)} m s-1, not at a detected threshold "
+                f"or its bootstrap percentiles{check}; remove the setting(s), or choose "
+                "ustar_method = \"moving_point\" or \"change_point\" to use them"]
     if method == "change_point":
         unused = _changed(config, MOVING_POINT_ONLY)
         if unused:

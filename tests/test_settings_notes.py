@@ -51,3 +51,39 @@ def test_the_lists_name_only_settings_that_exist():
     names = {f.name for f in fields(Config)}
     assert set(DETECTION) <= names and set(MOVING_POINT_ONLY) <= set(DETECTION)
     assert "ustar_threshold" not in DETECTION
+
+
+def test_a_fixed_run_names_the_settings_its_too_low_check_reads_as_tuning_that_check():
+    # review27: the fixed-threshold check (fluxpart.ustar_fixed, round mistakes24) runs the
+    # moving point test (Reichstein et al. 2005 (m)) with the run's floor and classes, so
+    # ustar_min_threshold is read there; the note may not say it "changes nothing"
+    notes = ignored_settings(Config(ustar_method="fixed", ustar_threshold=0.15,
+                                    ustar_min_threshold=0.2, ustar_scenarios=(5, 50, 95)))
+    assert len(notes) == 1 and "change no number of the run" in notes[0]
+    assert "changes nothing" not in notes[0] and "change nothing" not in notes[0]
+    assert "(ustar_min_threshold = 0.2 only tunes the detection that checks" in notes[0]
+    # a setting the check does not read (the scenarios need a bootstrap of the run's own
+    # threshold, Papale et al. 2006 (m)) is not said to tune it
+    only_scenarios = ignored_settings(Config(ustar_method="fixed", ustar_scenarios=(5, 50, 95)))
+    assert len(only_scenarios) == 1 and "tunes the detection" not in only_scenarios[0]
+
+
+def test_the_floor_setting_is_truly_read_by_the_fixed_check():
+    # known-truth recovery on an invented site-year (fluxpart.scenarios seed 0): with the
+    # planted threshold fixed the check is quiet, but a floor (ustar_min_threshold) set at
+    # twice the planted value lifts the detected threshold above 1.2 times the fixed one
+    # and the check names it, so FIXED_CHECK_READS must keep ustar_min_threshold
+    from fluxpart import scenarios, solar
+    from fluxpart.settings_notes import FIXED_CHECK_READS
+    from fluxpart.ustar_fixed import fixed_threshold_note
+    site_year = scenarios.generate(0)
+    frame, site = site_year.frame, site_year.site
+    planted = scenarios.draw(0).parameters["ustar_threshold"]
+    potential = solar.potential_radiation(frame.index, site.latitude, site.longitude,
+                                          site.utc_offset)
+    is_night = solar.night_mask(frame["rg"].to_numpy(), potential, 10.0)
+    arguments = (frame.index, frame["nee"], frame["ustar"], frame["tair"], is_night,
+                 site.latitude, planted, Config())
+    assert fixed_threshold_note(*arguments, planted * 0.5) is None
+    assert fixed_threshold_note(*arguments, planted * 2.0) is not None
+    assert "ustar_min_threshold" in FIXED_CHECK_READS
