@@ -106,8 +106,10 @@ def fixed_threshold_note(index, nee, ustar_values, tair, is_night, latitude: flo
     Returns
     -------
     str or None
-        The text naming each such year with its detected threshold and 5-95 % range;
-        None where no year qualifies or no threshold could be detected.
+        The text naming each such year with its detected threshold and 5-95 % range
+        (and, where a year's 5th percentile sits at `floor`, that the floor rather than
+        the night data puts the threshold above `fixed`); None where no year qualifies
+        or no threshold could be detected.
 
     Notes
     -----
@@ -140,8 +142,15 @@ def fixed_threshold_note(index, nee, ustar_values, tair, is_night, latitude: flo
     years = "; ".join(
         f"{int(row.year)}: {row.threshold:.3f} (5-95 %: {row.threshold_p05:.3f}-"
         f"{row.threshold_p95:.3f})" for row in rows.itertuples())
+    # a 5th percentile at the floor is the detector's lower bound, not a rise the night
+    # data show (review27): say so rather than claim the rise
+    at_floor = rows["threshold_p05"].astype(float).to_numpy() <= floor + 1e-9
+    evidence = ("the night NEE keeps rising with u* above it" if not at_floor.any()
+                else f"the detected threshold lies above it, for {int(at_floor.sum())} "
+                f"year(s) only by the floor of {floor:g} m s-1 below which no threshold is "
+                "detected (ustar_min_threshold, or the canopy's)")
     return (f"u* threshold: ustar_method = \"fixed\" filters at ustar_threshold = "
-            f"{fixed:g} m s-1, but the night NEE keeps rising with u* above it (moving "
+            f"{fixed:g} m s-1, but {evidence} (moving "
             f"point test with its bootstrap, m s-1: {years}): nights with flux lost to "
             "storage and drainage are kept as measured and bias NEE low and Reco low; "
             "the fixed value is used as set; check it, or remove ustar_method = "

@@ -66,3 +66,22 @@ def test_the_run_names_a_fixed_threshold_below_the_detected_one():
     quiet = process(site_year.frame, site_year.site,
                     Config(ustar_method="fixed", ustar_threshold=planted, random_error_draws=50))
     assert not [w for w in quiet.warnings if w.startswith("u* threshold: ustar_method")]
+
+
+def test_a_year_above_the_fixed_value_only_by_the_floor_is_said_to_be_the_floor():
+    # review27, known-truth recovery on generated seed 0: with the floor (ustar_min_threshold)
+    # at twice the planted threshold, the moving point test's thresholds are raised to the
+    # floor (Papale et al. 2006 (m): thresholds below it are not accepted), so its 5th
+    # percentile sits at the floor; the note may not claim the night NEE keeps rising above
+    # the fixed (planted) value, which the planted truth contradicts
+    site_year, is_night, planted = _site_year(0)
+    frame, site = site_year.frame, site_year.site
+    arguments = (frame.index, frame["nee"], frame["ustar"], frame["tair"], is_night,
+                 site.latitude)
+    text = fixed_threshold_note(*arguments, planted, Config(), 2 * planted)
+    assert text is not None
+    assert "keeps rising" not in text and f"by the floor of {2 * planted:g} m s-1" in text
+    # at the canopy's floor a fixed value well below the planted one is a rise the data show
+    text = fixed_threshold_note(*arguments, 0.4 * planted, Config(),
+                                ustar.CANOPY_FLOORS[site.canopy])
+    assert "the night NEE keeps rising with u* above it" in text and "floor" not in text
