@@ -10,8 +10,9 @@ detected) ``ustar_threshold = 0.02`` moved NEE by -36.5, nighttime Reco by
 -111.8 and nighttime GPP by -75.3 g C m-2 (round mistakes24), with no word but
 that the fixed threshold has no bootstrap.
 
-:func:`fixed_threshold_note` runs the configured detector on the same records
-(the run's moving point settings, with a bootstrap of 100 draws) and names the years whose
+:func:`fixed_threshold_note` runs the moving point test on the same records
+(the run's moving point settings and floor, with a bootstrap of 100 draws whatever
+``ustar_bootstrap_draws`` says, and the run's seed) and names the years whose
 fixed threshold lies below the detector's 5th bootstrap percentile and below the
 detected threshold by more than the factor the seasonal rule uses
 (:data:`fluxpart.ustar_seasonal.SEASONAL_MARGIN`). The fixed threshold is still
