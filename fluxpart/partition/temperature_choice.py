@@ -25,7 +25,7 @@ weather and flux error, and counted as independent they made a small difference 
 fit look like positive evidence (an other-physics site-year with respiration on air
 temperature, ρ 0.27 over 1,492 night records: ΔBIC −3.2 chose soil temperature and
 annual nighttime Reco came out −13.5 %; −1.9 over 862 effective records keeps air
-temperature, −6.1 %).
+temperature, −6.3 %).
 
 Before the comparison, a candidate whose fitted E0 lies within one standard
 error of an end of the accepted range (``e0_bounds``) is set aside when the other
