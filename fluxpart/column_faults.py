@@ -550,23 +550,39 @@ def nee_hour_shift(nee, rg, potential, interval_minutes: float, columns=None) ->
             "copy of the file")
 
 
+def _sunlit_changes(nee, rg, potential) -> tuple[np.ndarray, np.ndarray]:
+    """The changes of NEE and Rg from each record to the next, Rg's NaN unless the sun is
+    up at both records."""
+    d_nee, d_rg = np.diff(nee), np.diff(rg)
+    sunlit = (potential[1:] > 0) & (potential[:-1] > 0)
+    return d_nee, np.where(sunlit, d_rg, np.nan)
+
+
+def _shift_pairs(d_nee, d_rg, k: int) -> tuple[np.ndarray, np.ndarray]:
+    """The change of NEE k records on (a) beside that of Rg (b), pair by pair."""
+    return (d_nee[k:], d_rg[:d_rg.size - k]) if k >= 0 else (d_nee[:k], d_rg[-k:])
+
+
 def _best_shift(nee, rg, potential, interval_minutes: float, minimum: int):
     """(k, strength, same, apart) of the shift within :data:`_MAX_SHIFT_HOURS` whose sunlit
     changes correlate clearly best (:func:`_decide`) and beat the same shift a day on either
     side by as much (a passing cloud's), or None."""
-    most = int(_MAX_SHIFT_HOURS * 60 // interval_minutes)
-    per_day = int(round(1440.0 / interval_minutes))
-    d_nee, d_rg = np.diff(nee), np.diff(rg)
-    sunlit = (potential[1:] > 0) & (potential[:-1] > 0)
-    d_rg = np.where(sunlit, d_rg, np.nan)
+    d_nee, d_rg = _sunlit_changes(nee, rg, potential)
 
     def score(k):
         if abs(k) >= d_nee.size:
             return math.nan, 0
-        a, b = (d_nee[k:], d_rg[:d_rg.size - k]) if k >= 0 else (d_nee[:k], d_rg[-k:])
-        r, count = _correlation(a, b, minimum)
+        r, count = _correlation(*_shift_pairs(d_nee, d_rg, k), minimum)
         return -r, count
 
+    return _best_of(score, interval_minutes)
+
+
+def _best_of(score, interval_minutes: float):
+    """:func:`_best_shift`'s rule on `score(k)` -> (correlation signed to be positive where
+    physical, pairs) of each shift k [records]."""
+    most = int(_MAX_SHIFT_HOURS * 60 // interval_minutes)
+    per_day = int(round(1440.0 / interval_minutes))
     scores = {k: score(k) for k in range(-most, most + 1)}
     scores = {k: s for k, s in scores.items() if math.isfinite(s[0])}
     if 0 not in scores or len(scores) < 2:
@@ -585,6 +601,38 @@ def _best_shift(nee, rg, potential, interval_minutes: float, minimum: int):
                 _LAG_STANDARD_ERRORS * error):
             return None
     return found
+
+
+def _stretch_scores(d_nee, d_rg, firsts: np.ndarray, minimum: int):
+    """`score(k, m)`: :func:`_best_shift`'s score of shift k over the records from
+    ``firsts[m]`` to the end, from each month's sums of the pairs' moments (one pass per
+    shift, not one per shift and month: a ten-year record has 120 stretches)."""
+    cache = {}
+
+    def suffix_moments(k):
+        if k not in cache:
+            a, b = _shift_pairs(d_nee, d_rg, k)
+            ok = np.isfinite(a) & np.isfinite(b)
+            a, b = np.where(ok, a, 0.0), np.where(ok, b, 0.0)
+            month = np.searchsorted(firsts, np.arange(a.size), side="right")
+            sums = np.stack([np.bincount(month, weights=w, minlength=firsts.size + 1)
+                             for w in (ok.astype(float), a, b, a * a, b * b, a * b)])
+            # the sums over the pairs from each month's first record on
+            cache[k] = np.cumsum(sums[:, ::-1], axis=1)[:, ::-1]
+        return cache[k]
+
+    def score(k, m):
+        if abs(k) >= d_nee.size:
+            return math.nan, 0
+        n, sa, sb, saa, sbb, sab = suffix_moments(k)[:, m + 1]
+        count = int(round(n))
+        if count < minimum:
+            return math.nan, count
+        sxx, syy, sxy = saa - sa * sa / n, sbb - sb * sb / n, sab - sa * sb / n
+        scale = math.sqrt(max(sxx, 0.0) * max(syy, 0.0))
+        return (-sxy / scale if scale > 0 else math.nan), count
+
+    return score
 
 
 #: Sunlit pairs a stretch from a month on needs to be judged: a month's (``_MONTH_PAIRS``
@@ -644,9 +692,9 @@ def nee_shift_from_month(nee, rg, potential, stamps, interval_minutes: float,
     months = np.asarray(pd.DatetimeIndex(stamps).to_period("M").astype(str))
     firsts = np.flatnonzero(months[1:] != months[:-1]) + 1
     chosen = None
-    for first in firsts.tolist():
-        after = _best_shift(nee[first:], rg[first:], potential[first:], interval_minutes,
-                            _STRETCH_PAIRS)
+    stretch = _stretch_scores(*_sunlit_changes(nee, rg, potential), firsts, _STRETCH_PAIRS)
+    for m, first in enumerate(firsts.tolist()):
+        after = _best_of(lambda k, m=m: stretch(k, m), interval_minutes)
         if after is None:
             continue
         k = after[0]
