@@ -391,13 +391,10 @@ def _sunlit_change_scores(nee, rg, potential, shifts: dict) -> dict:
     """Per key of `shifts` (key -> shift k in records): (−r, pairs), r the correlation of the
     change of NEE from record t + k to the next with that of Rg from record t to the next,
     over the pairs of records with the sun up at t and t + 1."""
-    d_nee, d_rg = np.diff(nee), np.diff(rg)
-    sunlit = (potential[1:] > 0) & (potential[:-1] > 0)
-    d_rg = np.where(sunlit, d_rg, np.nan)
+    d_nee, d_rg = _sunlit_changes(nee, rg, potential)
     scores = {}
     for key, k in shifts.items():
-        a, b = (d_nee[k:], d_rg[:d_rg.size - k]) if k >= 0 else (d_nee[:k], d_rg[-k:])
-        r, count = _correlation(a, b)
+        r, count = _correlation(*_shift_pairs(d_nee, d_rg, k))
         scores[key] = (-r, count)
     return scores
 

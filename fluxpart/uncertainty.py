@@ -1932,9 +1932,13 @@ def effective_records(residuals, use) -> float:
     if scale > 0:
         anomaly = np.clip(anomaly, -3.0 * scale, 3.0 * scale)
     first, second = anomaly[:-1][pairs], anomaly[1:][pairs]
-    if np.std(first) <= 0 or np.std(second) <= 0:
+    first, second = first - first.mean(), second - second.mean()
+    # sums of products, not np.corrcoef's BLAS dot products: the same bits on every CPU
+    # and thread count, so that verify reruns it exactly elsewhere
+    scale = float(np.sqrt(np.sum(first * first) * np.sum(second * second)))
+    if not scale > 0:
         return float(n)
-    rho = min(max(float(np.corrcoef(first, second)[0, 1]), 0.0), _MAX_LAG_CORRELATION)
+    rho = min(max(float(np.sum(first * second)) / scale, 0.0), _MAX_LAG_CORRELATION)
     return float(min(max(n * (1.0 - rho) / (1.0 + rho), 2.0), n))
 
 
