@@ -40,6 +40,7 @@ from . import (
     budget,
     budget_warnings,
     clock,
+    gap_sides,
     gapfill,
     method_failure,
     night_uptake,
@@ -1036,6 +1037,11 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         seed=uncertainty.artificial_gap_seed(nee_measured), records_per_day=24 * 60 // interval,
         conditions_missing=conditions.isna().to_numpy())
     gapfill_model = uncertainty.gapfill_error_model(gap_errors)
+    # each long gap filled from one side only: a change of the canopy within it
+    sides = gap_sides.one_sided_fills(
+        nee_measured, *gap_sides.long_gaps(~measured, 24 * 60 // interval),
+        lambda values, gaps: _fill_nee(values, conditions, index, is_night, config,
+                                       gaps=gaps)["value"])
     runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
                                 "reco_nighttime": n.reco, "gpp_daytime": d.gpp,
                                 "reco_daytime": d.reco}, index=index)
@@ -1089,7 +1095,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
             timeseries["nee_filled"].to_numpy(dtype=float)), respiration_form=form,
         day_driver_statistic=None if day_evidence is None else day_evidence[0],
         day_evidence_critical=temperature_choice.DAYTIME_EVIDENCE_Z,
-        **_event_cut(index, config))
+        fill_sides=sides, **_event_cut(index, config))
     notes = []
     if (other_reco is not None and day_evidence is not None and inputs.driver_weight == 0.5
             and abs(day_evidence[0]) > temperature_choice.DAYTIME_EVIDENCE_Z):

@@ -63,6 +63,7 @@ from statistics import NormalDist
 import numpy as np
 import pandas as pd
 
+from . import gap_sides
 from ._validate import as_float
 from .constants import CARBON_MOLAR_MASS, CO2_MOLAR_MASS
 from .errors import (
@@ -1753,6 +1754,10 @@ class UncertaintyInputs:
         |ΣΔ| (:attr:`fluxpart.partition.respiration_form.FormAverage.spread_factor`):
         √(w (1 − w)) when the central Reco is the forms' average, √w when it is
         Lloyd–Taylor's [1].
+    fill_before, fill_after : numpy.ndarray or None
+        Fills of the long gaps' records from the measured records before and after
+        each gap only [µmol m-2 s-1], NaN elsewhere
+        (:func:`fluxpart.gap_sides.one_sided_fills`); None: not counted.
     """
 
     measured: np.ndarray
@@ -1777,6 +1782,8 @@ class UncertaintyInputs:
     form_delta: np.ndarray | None = None
     form_weight: float = 0.0
     form_spread: float = 0.0
+    fill_before: np.ndarray | None = None
+    fill_after: np.ndarray | None = None
 
 
 def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
@@ -2012,7 +2019,8 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
                   rref_window_days=4.0, other_driver_reco=None,
                   nee_measured=None, fill_window_days=None,
                   fill_noise_sigma=None, respiration_form=None, day_driver_statistic=None,
-                  day_evidence_critical=1.96, breaks=None) -> UncertaintyInputs:
+                  day_evidence_critical=1.96, breaks=None,
+                  fill_sides=None) -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -2059,6 +2067,10 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         Record positions of declared events (:func:`fluxpart.gapfill.event_breaks`):
         the windows' parts within each piece, as the methods take their parameters
         (:func:`window_membership`, :func:`interpolation_error`). Default None.
+    fill_sides : tuple of array_like, optional
+        ``(before, after)``: the long gaps' one-sided fills
+        (:func:`fluxpart.gap_sides.one_sided_fills`) [µmol m-2 s-1]; default None
+        (not counted).
 
     Returns
     -------
@@ -2093,6 +2105,8 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         else respiration_form.difference,
         form_weight=0.0 if respiration_form is None else respiration_form.weight,
         form_spread=0.0 if respiration_form is None else respiration_form.spread_factor,
+        fill_before=None if fill_sides is None else np.asarray(fill_sides[0], dtype=float),
+        fill_after=None if fill_sides is None else np.asarray(fill_sides[1], dtype=float),
         driver_delta=None if other_driver_reco is None else
         np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
         driver_weight=0.0 if other_driver_reco is None else combined_driver_weight(
@@ -2179,6 +2193,18 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         0.7.0 the part was max(B², S²), S computed as if all filled records
         shared one error, to stand in for the correlation between gaps that
         the per-gap terms then missed. Figures: DEVELOPERS.md, "Calibration".
+      * a gap longer than 14 days across a change of state (since 0.24.0;
+        :mod:`fluxpart.gap_sides`): the gap is filled again from the records
+        before it only and after it only, and a change of the canopy from the
+        one state to the other at a uniformly distributed time within the gap
+        adds ``(m − F)² + D²/12`` per gap and period (F, B, A the central and
+        the two one-sided fills' sums, m = (A + B)/2, D = A − B;
+        :func:`fluxpart.gap_sides.state_change_variance`). The artificial gaps
+        meet a change of state only as often as a gap placed at random does,
+        so a real gap across the green-up was stated as certain as one in
+        midsummer: on a known-truth leap year with a 34-day gap across the
+        leaf-out the NEE error was −40.2 g C m-2 against a stated 1 σ of 10.9
+        (gap-filling part 10.4 → 25.3 with the term).
     - u* threshold: :func:`ustar_sigma` of the scenario sums.
     - fitted parameters: nighttime Reco: E0 + 1 s.e. (:func:`e0_sensitivity`,
       fully correlated) and the relative standard error of each Rref window
@@ -2359,6 +2385,12 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             size[where] = _fill_size(nee_filled[where], reference)
         gap_var, bias, bias_se = fill_variance(filled)
         gap_var_day = fill_variance(filled & ~night)[0]
+        if inputs.fill_before is not None:
+            # a long gap across a change of the canopy (gap_sides.state_change_variance)
+            sides = (nee_filled, inputs.fill_before, inputs.fill_after, codes, len(index))
+            gap_var = gap_var + gap_sides.state_change_variance(*sides) * factor**2
+            gap_var_day = gap_var_day + gap_sides.state_change_variance(
+                *sides, records=~night) * factor**2
     unknown = np.full(len(index), np.nan)
     out["nee_uncertainty_gapfill"] = np.sqrt(gap_var) if gapfill_known else unknown
     out["gpp_nighttime_uncertainty_gapfill"] = np.sqrt(gap_var_day) if gapfill_known else unknown

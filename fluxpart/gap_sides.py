@@ -1,0 +1,170 @@
+"""The two sides of a long NEE gap: the error of a fill across a change of the canopy.
+
+A gap of weeks in the NEE record is filled from donors days to months away. Where the
+ecosystem changes state inside the gap (leaf-out, senescence, a harvest, the end of a
+drought), the donors of one side describe the canopy before the change and those of
+the other side the canopy after it, and no similarity of weather tells which state held
+on a given day of the gap. The artificial gaps of :func:`fluxpart.uncertainty.
+artificial_gap_errors` score such fills only as often as a gap of that length placed at
+random meets a change of state, so a real gap that spans the green-up is stated as
+certain as one in midsummer.
+
+This module fills each long gap twice more, once from the records before it only and
+once from the records after it only, and states the error of the gap's sum as that of
+a change of state at an unknown time within the gap (:func:`state_change_variance`).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+#: Gaps longer than this [days] get the two one-sided fills. Marginal distribution
+#: sampling first looks for donors within ±7 days (Reichstein et al. 2005): in a gap of
+#: up to 14 days every record has measured records of one side that close, so its fill
+#: describes the canopy of the days around it; beyond, the middle of the gap is filled
+#: from a canopy at least a week away on both sides.
+MIN_GAP_DAYS = 14.0
+
+
+def long_gaps(filled, records_per_day: int, min_days: float = MIN_GAP_DAYS):
+    """Start positions and lengths of the runs of filled records longer than `min_days`.
+
+    Parameters
+    ----------
+    filled : array_like of bool
+        True where NEE is filled (not measured).
+    records_per_day : int
+        Records per day (48 for 30-minute, 24 for hourly records).
+    min_days : float, optional
+        Shortest gap taken [days], exclusive; default :data:`MIN_GAP_DAYS`.
+
+    Returns
+    -------
+    starts, lengths : numpy.ndarray of int
+        First record of each long gap and its length [records].
+    """
+    filled = np.asarray(filled, dtype=bool)
+    edges = np.diff(np.concatenate([[0], filled.astype(np.int8), [0]]))
+    starts = np.flatnonzero(edges == 1)
+    lengths = np.flatnonzero(edges == -1) - starts
+    keep = lengths > float(min_days) * int(records_per_day)
+    return starts[keep], lengths[keep]
+
+
+def one_sided_fills(nee_measured, starts, lengths, fill):
+    """Fill each gap from the records before it only and from those after it only.
+
+    Parameters
+    ----------
+    nee_measured : array_like
+        NEE after screening and the u* filter [µmol m-2 s-1], NaN where missing.
+    starts, lengths : array_like of int
+        The gaps (:func:`long_gaps`) [records].
+    fill : callable
+        ``fill(values, gaps) -> filled values``: the run's own NEE gap filling of
+        `values` (NaN where missing) at the records True in `gaps` only.
+
+    Returns
+    -------
+    before, after : numpy.ndarray
+        Per record [µmol m-2 s-1]: inside each gap its fill from the measured records
+        before the gap (those from the gap's end on hidden) and from those after it
+        (those up to the gap's start hidden); NaN outside the gaps and where a fill
+        found no donor.
+    """
+    nee = np.asarray(nee_measured, dtype=float)
+    before = np.full(nee.size, np.nan)
+    after = np.full(nee.size, np.nan)
+    for start, length in zip(np.asarray(starts, int), np.asarray(lengths, int), strict=True):
+        end = start + length
+        gap = np.zeros(nee.size, dtype=bool)
+        gap[start:end] = True
+        early = nee.copy()
+        early[end:] = np.nan
+        before[start:end] = np.asarray(fill(early, gap), dtype=float)[start:end]
+        late = nee.copy()
+        late[:start] = np.nan
+        after[start:end] = np.asarray(fill(late, gap), dtype=float)[start:end]
+    return before, after
+
+
+def state_change_variance(fill, before, after, codes, periods: int, records=None):
+    """Variance of gap sums from a change of state at an unknown time in each gap.
+
+    Parameters
+    ----------
+    fill : array_like
+        The central fill of each record [µmol m-2 s-1].
+    before, after : array_like
+        One-sided fills (:func:`one_sided_fills`) [µmol m-2 s-1]; NaN outside the
+        long gaps.
+    codes : array_like of int
+        Period number of each record (0 .. `periods` − 1).
+    periods : int
+        Number of periods.
+    records : array_like of bool, optional
+        Records counted (e.g. the daylight ones only); default all.
+
+    Returns
+    -------
+    numpy.ndarray
+        Per period [(µmol m-2 s-1)² summed over records, i.e. the square of a sum of
+        µmol m-2 s-1]: Σ over the gaps' parts in the period of
+        ``(m − F)² + D² / 12``, with ``B``, ``A`` and ``F`` the sums of the part's
+        before-side, after-side and central fills, ``m = (A + B) / 2`` and
+        ``D = A − B``.
+
+    Notes
+    -----
+    If the ecosystem changes from the state the before-side donors describe to the
+    one the after-side donors describe at a time u within the gap, the true sum of a
+    gap's part is close to ``A + u' (B − A)``, u' the share of the part before the
+    change. With u' uniform on [0, 1] (nothing in the records tells when the change
+    came), the sum has mean m and variance D²/12 (the variance of a uniform
+    distribution), and the central fill F errs by ``(m − F)² + D²/12`` in mean
+    square. Where both sides describe the same state, A ≈ B ≈ F and the term
+    vanishes; a fill that took its donors from one side only (as similarity of
+    temperature does in spring, when the warm days of the gap resemble the days
+    after leaf-out) carries D²/3. A change that is not monotonic within the gap
+    (a harvest and regrowth) is not described. A record whose one-sided fill
+    found no donor counts its central fill on that side (no evidence of a change).
+    Both sides are filled with the run's own method and settings, so the weather
+    of the gap is accounted for by the donors' similarity as in the central fill.
+
+    References
+    ----------
+    Richardson, A. D. & Hollinger, D. Y. (2007). A method to estimate the
+    additional uncertainty in gap-filled NEE resulting from long gaps in the CO2
+    flux record. Agric. For. Meteorol. 147, 199–208. (Long gaps carry most of the
+    gap-filling error; their error grows with the gap's length and the season.)
+
+    Reichstein, M. et al. (2005). On the separation of net ecosystem exchange into
+    assimilation and ecosystem respiration: review and improved algorithm. Global
+    Change Biology 11, 1424–1439. (Marginal distribution sampling's windows.)
+    """
+    fill = np.asarray(fill, dtype=float)
+    before = np.asarray(before, dtype=float)
+    after = np.asarray(after, dtype=float)
+    codes = np.asarray(codes, dtype=np.int64)
+    in_gap = np.isfinite(before) | np.isfinite(after)
+    if records is not None:
+        in_gap &= np.asarray(records, dtype=bool)
+    in_gap &= np.isfinite(fill)
+    if not in_gap.any():
+        return np.zeros(int(periods))
+    # gap number of each record (runs of the long gaps' records), then one group per gap
+    # and period
+    starts = np.diff(np.concatenate([[0], (np.isfinite(before) | np.isfinite(after))
+                                     .astype(np.int8)])) == 1
+    gap = np.cumsum(starts) - 1
+    group = gap[in_gap] * int(periods) + codes[in_gap]
+    central = fill[in_gap]
+    early = np.where(np.isfinite(before[in_gap]), before[in_gap], central)
+    late = np.where(np.isfinite(after[in_gap]), after[in_gap], central)
+    labels, position = np.unique(group, return_inverse=True)
+    sums = [np.bincount(position, weights=values, minlength=labels.size)
+            for values in (central, early, late)]
+    f, b, a = sums
+    middle = (a + b) / 2.0
+    variance = np.square(middle - f) + np.square(a - b) / 12.0
+    return np.bincount(labels % int(periods), weights=variance, minlength=int(periods))

@@ -1,0 +1,126 @@
+"""The two sides of a long NEE gap (fluxpart.gap_sides): a fill across a change of state."""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart import gapfill
+from fluxpart.gap_sides import long_gaps, one_sided_fills, state_change_variance
+
+
+def test_long_gaps_keep_runs_longer_than_two_weeks_only():
+    filled = np.zeros(60 * 48, dtype=bool)
+    filled[100:100 + 14 * 48] = True            # exactly 14 days: not longer
+    filled[1000:1000 + 14 * 48 + 1] = True      # one record more
+    filled[2500:2510] = True
+    starts, lengths = long_gaps(filled, 48)
+    assert starts.tolist() == [1000] and lengths.tolist() == [14 * 48 + 1]
+    assert long_gaps(filled, 48, min_days=0.1)[0].tolist() == [100, 1000, 2500]
+
+
+def test_state_change_variance_is_the_mean_square_error_of_a_uniform_change_time():
+    """A gap of n records changes from flux b to flux a at a uniformly distributed record
+    (the uniform distribution's variance (b − a)²/12 and mean, a textbook fact); the
+    mean square error of a fill F equals the brute-force average over every change
+    time."""
+    n, b, a = 400, 1.0, -3.0
+    before, after = np.full(n, b), np.full(n, a)
+    for fill_value in (a, b, (a + b) / 2, 0.3):
+        fill = np.full(n, fill_value)
+        truths = np.array([b * k + a * (n - k) for k in range(n + 1)])   # change after k records
+        brute = np.mean(np.square(truths - fill.sum()))
+        stated = state_change_variance(fill, before, after, np.zeros(n, int), 1)[0]
+        assert stated == pytest.approx(brute, rel=0.01)
+    # a fill from one side only carries D²/3; both sides alike carry nothing
+    assert state_change_variance(after, before, after, np.zeros(n, int), 1)[0] == \
+        pytest.approx((n * (a - b)) ** 2 / 3)
+    assert state_change_variance(before, before, before, np.zeros(n, int), 1)[0] == 0.0
+
+
+def test_state_change_variance_by_period_and_records():
+    """Each gap's part in a period counts apart; `records` restricts the sums; records
+    outside the long gaps (NaN sides) count nothing; a side without donors (NaN inside
+    the gap) takes the central fill."""
+    n = 10
+    fill = np.zeros(n)
+    before = np.full(n, np.nan)
+    after = np.full(n, np.nan)
+    before[2:8], after[2:8] = 1.0, -1.0                     # one gap, records 2-7
+    codes = np.array([0] * 5 + [1] * 5)                      # records 2-4 and 5-7
+    out = state_change_variance(fill, before, after, codes, 2)
+    assert out == pytest.approx([(3 * 2.0) ** 2 / 12, (3 * 2.0) ** 2 / 12])
+    day = np.zeros(n, dtype=bool)
+    day[[2, 3]] = True
+    assert state_change_variance(fill, before, after, codes, 2, records=day) == \
+        pytest.approx([(2 * 2.0) ** 2 / 12, 0.0])
+    after[2:8] = np.nan                                      # no donor after the gap
+    assert state_change_variance(fill, before, after, codes, 2) == \
+        pytest.approx([(3 / 2) ** 2 + 3.0 ** 2 / 12] * 2)
+
+
+def test_one_sided_fills_recover_each_sides_level_across_a_step_in_a_long_gap():
+    """Known-truth recovery (invented series): a daily cycle whose level steps from +2 to
+    -4 µmol m-2 s-1 inside a 30-day gap; marginal distribution sampling from the
+    records before the gap only gives the first level, from those after only the
+    second, and the variance then counts the step."""
+    index = pd.date_range("2021-03-01", periods=120 * 48, freq="30min")
+    n = len(index)
+    hour = index.hour.to_numpy() + index.minute.to_numpy() / 60
+    rg = np.clip(800 * np.sin(np.pi * (hour - 6) / 12), 0, None)
+    night = rg <= 0
+    level = np.where(np.arange(n) < 60 * 48, 2.0, -4.0)
+    nee = np.where(night, 3.0, level)
+    drivers = pd.DataFrame({"rg": rg, "tair": np.full(n, 15.0), "vpd": np.full(n, 8.0)})
+    measured = nee.copy()
+    start, length = 45 * 48, 30 * 48
+    measured[start:start + length] = np.nan
+
+    def fill(values, gaps):
+        return gapfill.fill_marginal(values, drivers, index, is_night=night, gaps=gaps,
+                                     max_window_days=140)["value"].to_numpy()
+
+    starts, lengths = long_gaps(np.isnan(measured), 48)
+    assert starts.tolist() == [start] and lengths.tolist() == [length]
+    before, after = one_sided_fills(measured, starts, lengths, fill)
+    gap = slice(start, start + length)
+    day = ~night[gap]
+    assert np.allclose(before[gap][day], 2.0) and np.allclose(after[gap][day], -4.0)
+    assert np.allclose(before[gap][~day], 3.0) and np.allclose(after[gap][~day], 3.0)
+    assert np.isnan(before[:start]).all() and np.isnan(after[start + length:]).all()
+    central = fill(measured, np.isnan(measured))
+    variance = state_change_variance(central, before, after, np.zeros(n, int), 1)[0]
+    step = 6.0 * day.sum()
+    assert variance >= step**2 / 12
+
+
+def test_period_uncertainty_adds_the_state_change_to_the_gapfill_part():
+    """The gap-filling part grows by the state-change variance in quadrature; without
+    one-sided fills it is as before."""
+    from fluxpart.uncertainty import UncertaintyInputs, period_uncertainty
+
+    index = pd.date_range("2021-04-01", periods=40 * 48, freq="30min")
+    n = len(index)
+    measured = np.ones(n, dtype=bool)
+    measured[100:100 + 20 * 48] = False
+    zeros = np.zeros(n)
+    fluxes = pd.DataFrame({name: np.ones(n) for name in (
+        "nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")}, index=index)
+    model = pd.DataFrame({name: [0.0, 0.0] for name in (
+        "bias", "bias_se", "correlated_variance")} | {"independent_variance": [0.5, 0.5]},
+        index=pd.Index(["night", "day"], name="record_class"))
+    before = np.where(~measured, 2.0, np.nan)
+    after = np.where(~measured, 0.0, np.nan)
+    common = dict(measured=measured, noise_sigma=zeros, is_night=np.zeros(n, dtype=bool),
+                  fluxes=fluxes, runs={}, gapfill_model=model, e0_delta=zeros,
+                  night_window=np.zeros(n, dtype=int), night_relative_se=np.full(n, np.nan),
+                  day_window=np.zeros(n, dtype=int), day_relative_se=np.full(n, np.nan))
+    plain = period_uncertainty(UncertaintyInputs(**common), np.zeros(n, int), 30)
+    sided = period_uncertainty(UncertaintyInputs(**common, fill_before=before,
+                                                 fill_after=after), np.zeros(n, int), 30)
+    grams = 1800 * 12.011e-6
+    records = 20 * 48
+    extra = (records * 2.0) ** 2 / 12 * grams**2        # m = F: only D²/12
+    assert sided["nee_uncertainty_gapfill"].iloc[0] ** 2 == pytest.approx(
+        plain["nee_uncertainty_gapfill"].iloc[0] ** 2 + extra)
+    assert sided["gpp_nighttime_uncertainty_gapfill"].iloc[0] ** 2 == pytest.approx(
+        plain["gpp_nighttime_uncertainty_gapfill"].iloc[0] ** 2 + extra)
