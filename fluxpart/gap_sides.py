@@ -26,7 +26,7 @@ import numpy as np
 MIN_GAP_DAYS = 14.0
 
 
-def long_gaps(filled, records_per_day: int, min_days: float = MIN_GAP_DAYS):
+def long_gaps(filled, records_per_day: int, min_days: float = MIN_GAP_DAYS, breaks=None):
     """Start positions and lengths of the runs of filled records longer than `min_days`.
 
     Parameters
@@ -37,6 +37,10 @@ def long_gaps(filled, records_per_day: int, min_days: float = MIN_GAP_DAYS):
         Records per day (48 for 30-minute, 24 for hourly records).
     min_days : float, optional
         Shortest gap taken [days], exclusive; default :data:`MIN_GAP_DAYS`.
+    breaks : array_like of int, optional
+        Record positions of declared events (:func:`fluxpart.gapfill.event_breaks`):
+        a gap with an event inside or at either end is left out: the time of the
+        change is known, and each side of the event is filled from its own side.
 
     Returns
     -------
@@ -48,6 +52,11 @@ def long_gaps(filled, records_per_day: int, min_days: float = MIN_GAP_DAYS):
     starts = np.flatnonzero(edges == 1)
     lengths = np.flatnonzero(edges == -1) - starts
     keep = lengths > float(min_days) * int(records_per_day)
+    if breaks is not None and len(breaks):
+        cuts = np.asarray(breaks, dtype=np.int64)
+        # an event within the gap or at either of its ends
+        inside = (cuts[None, :] >= starts[:, None]) & (cuts[None, :] <= (starts + lengths)[:, None])
+        keep &= ~inside.any(axis=1)
     return starts[keep], lengths[keep]
 
 
@@ -168,3 +177,61 @@ def state_change_variance(fill, before, after, codes, periods: int, records=None
     middle = (a + b) / 2.0
     variance = np.square(middle - f) + np.square(a - b) / 12.0
     return np.bincount(labels % int(periods), weights=variance, minlength=int(periods))
+
+
+def state_change_notes(index, fill, before, after, interval_minutes: int,
+                       gapfill_sigma) -> list:
+    """Warnings naming each long gap whose change of state is most of its year's
+    gap-filling uncertainty.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Record times (stamps at interval start).
+    fill, before, after : array_like
+        Central and one-sided fills (:func:`one_sided_fills`) [µmol m-2 s-1].
+    interval_minutes : int
+        Record length [min].
+    gapfill_sigma : pandas.Series
+        The gap-filling part of each year's NEE uncertainty, 1 sigma [g C m-2], by
+        year (the annual ``nee_uncertainty_gapfill``).
+
+    Returns
+    -------
+    list of str
+        One warning per gap whose state-change 1 sigma (:func:`state_change_variance`
+        over the whole gap) is at least half its year's gap-filling part (a quarter of
+        its variance or more): its dates, the sums of its fills from each side alone
+        and as filled [g C m-2], and that 1 sigma.
+    """
+    fill = np.asarray(fill, dtype=float)
+    before = np.asarray(before, dtype=float)
+    after = np.asarray(after, dtype=float)
+    grams = float(interval_minutes) * 60.0 * 12.011e-6      # g C m-2 per (µmol m-2 s-1)
+    in_gap = np.isfinite(before) | np.isfinite(after)
+    edges = np.diff(np.concatenate([[0], in_gap.astype(np.int8), [0]]))
+    notes = []
+    for start, end in zip(np.flatnonzero(edges == 1), np.flatnonzero(edges == -1), strict=True):
+        part = slice(start, end)
+        central = fill[part]
+        if not np.isfinite(central).any():
+            continue
+        sigma = float(np.sqrt(state_change_variance(central, before[part], after[part],
+                                                    np.zeros(end - start, int), 1)[0])) * grams
+        year = int(index[start].year)
+        reference = float(gapfill_sigma.get(year, np.nan))
+        if not np.isfinite(reference) or sigma < 0.5 * reference or sigma == 0.0:
+            continue
+        sums = [float(np.nansum(np.where(np.isfinite(side), side, central))) * grams
+                for side in (before[part], after[part])]
+        days = (end - start) * float(interval_minutes) / 1440.0
+        notes.append(
+            f"the NEE gap {index[start]:%Y-%m-%d %H:%M} to {index[end - 1]:%Y-%m-%d %H:%M} "
+            f"({days:.0f} days) spans a change of state: filled from the records before it "
+            f"alone it sums to {sums[0]:+.1f} g C m-2, from those after it alone to "
+            f"{sums[1]:+.1f}, as filled to {float(np.nansum(central)) * grams:+.1f}; the "
+            f"interval counts {sigma:.1f} g C m-2 (1 sigma) for the unknown time of the "
+            f"change, {sigma / reference * 100:.0f} % of the year's gap-filling part. Where "
+            "the site's log dates the change (leaf-out, a harvest or cut, rain after a "
+            "drought), declare it as an event so that neither side fills the other")
+    return notes

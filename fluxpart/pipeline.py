@@ -1039,7 +1039,8 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
     gapfill_model = uncertainty.gapfill_error_model(gap_errors)
     # each long gap filled from one side only: a change of the canopy within it
     sides = gap_sides.one_sided_fills(
-        nee_measured, *gap_sides.long_gaps(~measured, 24 * 60 // interval),
+        nee_measured, *gap_sides.long_gaps(~measured, 24 * 60 // interval,
+                                           breaks=gapfill.event_breaks(index, config.events)),
         lambda values, gaps: _fill_nee(values, conditions, index, is_night, config,
                                        gaps=gaps)["value"])
     runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
@@ -1116,6 +1117,8 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                                           draws=config.random_error_draws, seed=config.seed,
                                           year_keys=year_keys)
     annual = annual.join(uncertainty.uncertainty_budget(annual, random, parts))
+    notes.extend(gap_sides.state_change_notes(index, nee_filled, *sides, interval,
+                                              annual["nee_uncertainty_gapfill"]))
     return tables[0], tables[1], annual, gapfill_model, notes
 
 

@@ -5,7 +5,12 @@ import pandas as pd
 import pytest
 
 from fluxpart import gapfill
-from fluxpart.gap_sides import long_gaps, one_sided_fills, state_change_variance
+from fluxpart.gap_sides import (
+    long_gaps,
+    one_sided_fills,
+    state_change_notes,
+    state_change_variance,
+)
 
 
 def test_long_gaps_keep_runs_longer_than_two_weeks_only():
@@ -124,3 +129,39 @@ def test_period_uncertainty_adds_the_state_change_to_the_gapfill_part():
         plain["nee_uncertainty_gapfill"].iloc[0] ** 2 + extra)
     assert sided["gpp_nighttime_uncertainty_gapfill"].iloc[0] ** 2 == pytest.approx(
         plain["gpp_nighttime_uncertainty_gapfill"].iloc[0] ** 2 + extra)
+
+
+def test_long_gaps_leave_out_a_gap_with_a_declared_event():
+    """An event inside a gap or at its ends dates the change: no unknown time to count."""
+    filled = np.zeros(100 * 48, dtype=bool)
+    filled[480:480 + 20 * 48] = True
+    filled[3000:3000 + 20 * 48] = True
+    assert long_gaps(filled, 48, breaks=np.array([480 + 5 * 48]))[0].tolist() == [3000]
+    assert long_gaps(filled, 48, breaks=np.array([3000 + 20 * 48]))[0].tolist() == [480]
+    assert long_gaps(filled, 48, breaks=np.array([2000]))[0].tolist() == [480, 3000]
+
+
+def test_state_change_notes_name_a_gap_that_dominates_the_gapfill_part():
+    """A 20-day gap whose two sides differ by 4 µmol m-2 s-1 is named with its dates and
+    sums; one whose sides agree is not."""
+    index = pd.date_range("2021-04-01", periods=60 * 48, freq="30min")
+    n = len(index)
+    fill = np.full(n, -1.0)
+    before = np.full(n, np.nan)
+    after = np.full(n, np.nan)
+    gap = slice(10 * 48, 30 * 48)
+    before[gap], after[gap] = 1.0, -3.0
+    grams = 1800 * 12.011e-6
+    sigma = np.sqrt((20 * 48 * 4.0) ** 2 / 12) * grams
+    notes = state_change_notes(index, fill, before, after, 30, pd.Series({2021: sigma}))
+    assert len(notes) == 1
+    assert "2021-04-11 00:00 to 2021-04-30 23:30 (20 days)" in notes[0]
+    assert f"{20 * 48 * grams:+.1f} g C m-2" in notes[0]          # from before: +1 each
+    assert f"{-3 * 20 * 48 * grams:+.1f}," in notes[0]             # from after: -3 each
+    assert f"{sigma:.1f} g C m-2 (1 sigma)" in notes[0] and "declare it as an event" in notes[0]
+    # sides agree: nothing to name; a small share of a larger gap-filling part: nothing
+    assert state_change_notes(index, fill, np.where(np.isfinite(before), -1.0, np.nan),
+                              np.where(np.isfinite(after), -1.0, np.nan), 30,
+                              pd.Series({2021: sigma})) == []
+    assert state_change_notes(index, fill, before, after, 30,
+                              pd.Series({2021: 3 * sigma})) == []
