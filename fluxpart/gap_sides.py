@@ -97,7 +97,8 @@ def one_sided_fills(nee_measured, starts, lengths, fill):
     return before, after
 
 
-def state_change_variance(fill, before, after, codes, periods: int, records=None):
+def state_change_variance(fill, before, after, codes, periods: int, records=None,
+                          groups=None):
     """Variance of gap sums from a change of state at an unknown time in each gap.
 
     Parameters
@@ -113,6 +114,9 @@ def state_change_variance(fill, before, after, codes, periods: int, records=None
         Number of periods.
     records : array_like of bool, optional
         Records counted (e.g. the daylight ones only); default all.
+    groups : array_like of int, optional
+        Number of the gap (or stretch) each record belongs to, non-negative; default
+        the runs of records whose `before` or `after` is finite.
 
     Returns
     -------
@@ -163,9 +167,12 @@ def state_change_variance(fill, before, after, codes, periods: int, records=None
         return np.zeros(int(periods))
     # gap number of each record (runs of the long gaps' records), then one group per gap
     # and period
-    starts = np.diff(np.concatenate([[0], (np.isfinite(before) | np.isfinite(after))
-                                     .astype(np.int8)])) == 1
-    gap = np.cumsum(starts) - 1
+    if groups is None:
+        starts = np.diff(np.concatenate([[0], (np.isfinite(before) | np.isfinite(after))
+                                         .astype(np.int8)])) == 1
+        gap = np.cumsum(starts) - 1
+    else:
+        gap = np.asarray(groups, dtype=np.int64)
     group = gap[in_gap] * int(periods) + codes[in_gap]
     central = fill[in_gap]
     early = np.where(np.isfinite(before[in_gap]), before[in_gap], central)

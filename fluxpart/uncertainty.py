@@ -1758,6 +1758,13 @@ class UncertaintyInputs:
         Fills of the long gaps' records from the measured records before and after
         each gap only [µmol m-2 s-1], NaN elsewhere
         (:func:`fluxpart.gap_sides.one_sided_fills`); None: not counted.
+    day_gpp_before, day_gpp_after, day_stretch : numpy.ndarray or None
+        Daytime GPP of the records between two daytime windows whose centres lie
+        more than :data:`fluxpart.gap_sides.MIN_GAP_DAYS` apart, from the light
+        response of the window before alone and of the one after alone
+        [µmol m-2 s-1], NaN elsewhere, and the number of the stretch each record
+        lies in (:class:`fluxpart.partition.daytime.DaytimeResult`); None: not
+        counted.
     """
 
     measured: np.ndarray
@@ -1784,6 +1791,9 @@ class UncertaintyInputs:
     form_spread: float = 0.0
     fill_before: np.ndarray | None = None
     fill_after: np.ndarray | None = None
+    day_gpp_before: np.ndarray | None = None
+    day_gpp_after: np.ndarray | None = None
+    day_stretch: np.ndarray | None = None
 
 
 def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
@@ -2020,7 +2030,7 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
                   nee_measured=None, fill_window_days=None,
                   fill_noise_sigma=None, respiration_form=None, day_driver_statistic=None,
                   day_evidence_critical=1.96, breaks=None,
-                  fill_sides=None) -> UncertaintyInputs:
+                  fill_sides=None, daytime_result=None) -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -2071,6 +2081,12 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         ``(before, after)``: the long gaps' one-sided fills
         (:func:`fluxpart.gap_sides.one_sided_fills`) [µmol m-2 s-1]; default None
         (not counted).
+    daytime_result : DaytimeResult, optional
+        The central daytime partitioning, whose per-record GPP of the windows before
+        and after each record (``gpp_before``, ``gpp_after``, ``span_days``,
+        ``stretch``) give the change of the light response across a stretch of
+        more than :data:`fluxpart.gap_sides.MIN_GAP_DAYS` without a window in use;
+        default None (not counted).
 
     Returns
     -------
@@ -2091,7 +2107,16 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
     night_interval, night_interpolation, _ = interpolation_error(
         index, nighttime_result.rref_windows, **cut)
     day_interval, day_interpolation, _ = interpolation_error(index, daytime_parameters, **cut)
+    day_sides = {}
+    if daytime_result is not None and daytime_result.gpp_before is not None:
+        # the stretches between daytime windows more than two weeks apart
+        wide = np.asarray(daytime_result.span_days, dtype=float) > gap_sides.MIN_GAP_DAYS
+        day_sides = {
+            "day_gpp_before": np.where(wide, daytime_result.gpp_before, np.nan),
+            "day_gpp_after": np.where(wide, daytime_result.gpp_after, np.nan),
+            "day_stretch": np.asarray(daytime_result.stretch, dtype=np.int64)}
     return UncertaintyInputs(
+        **day_sides,
         measured=np.asarray(measured, dtype=bool), noise_sigma=np.asarray(noise_sigma, float),
         is_night=np.asarray(is_night, dtype=bool), fluxes=fluxes,
         runs={name: frame for name, frame in runs.items()}, gapfill_model=gapfill_model,
@@ -2448,6 +2473,14 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         "gpp_daytime": np.sqrt(day_rref_gpp) * factor if day_known else
         np.full(len(index), np.nan),
     }
+    if day_known and inputs.day_gpp_before is not None:
+        # a stretch of weeks without a daytime window: the light response of the one
+        # side or the other (gap_sides.state_change_variance)
+        capacity = gap_sides.state_change_variance(
+            fluxes["gpp_daytime"].to_numpy(dtype=float), inputs.day_gpp_before,
+            inputs.day_gpp_after, codes, len(index), groups=inputs.day_stretch)
+        parameters["gpp_daytime"] = np.sqrt(np.square(parameters["gpp_daytime"])
+                                            + capacity * factor**2)
     # nighttime GPP = Reco - NEE: at night both are estimates of the same night respiration
     # from the same night records, so only the part outside the night reaches it (Notes)
     parameters["gpp_nighttime"] = np.sqrt(e0_part_day + night_rref_day * factor**2) \

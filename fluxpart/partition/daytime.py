@@ -270,12 +270,26 @@ class DaytimeResult:
         weights); ``accepted`` (bool: the window's parameters are used);
         ``status`` (one of :data:`STATUSES`); ``reason`` (why); ``k_fixed``
         (bool). Parameters of windows too small to fit are NaN.
+    gpp_before, gpp_after : numpy.ndarray or None
+        GPP of each record from the light response of the window in use centred
+        before it and after it alone [µmol m-2 s-1] (``gpp`` is their time-weighted
+        mean); None where not computed.
+    span_days : numpy.ndarray or None
+        Time between the centres of those two windows [days] (0 before the first
+        and after the last window).
+    stretch : numpy.ndarray of int or None
+        Number of the window in use centred before each record: the records
+        between two window centres share it.
     """
 
     gpp: np.ndarray
     reco: np.ndarray
     e0: np.ndarray
     parameters: pd.DataFrame
+    gpp_before: np.ndarray | None = None
+    gpp_after: np.ndarray | None = None
+    span_days: np.ndarray | None = None
+    stretch: np.ndarray | None = None
 
 
 def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
@@ -508,7 +522,9 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
     if weight is not None or curvature == "fit":
         fit = _partition(data, weight, settings)
     parameters = _parameter_table(index, fit)
-    return DaytimeResult(gpp=fit["gpp"], reco=fit["reco"], e0=fit["e0"], parameters=parameters)
+    return DaytimeResult(gpp=fit["gpp"], reco=fit["reco"], e0=fit["e0"], parameters=parameters,
+                         gpp_before=fit["gpp_sides"][0], gpp_after=fit["gpp_sides"][1],
+                         span_days=fit["span_days"], stretch=np.asarray(fit["stretch"]))
 
 
 def _prepare(data, weight, settings) -> dict:
@@ -607,12 +623,14 @@ def _partition(data, weight, settings) -> dict:
     # Fluxes, not parameters, are interpolated: each record takes the time-weighted
     # mean of the two neighbouring windows' curves, so it never gets a curve that
     # neither window fitted (alpha of one with beta0 of the other).
+    sides = []
     for side, time_share in ((before, 1.0 - share), (after, share)):
         parameters = theta[used][side]
         e0_side = supplied_e0 if supplied_e0 is not None else window_e0[side]
-        gpp += time_share * light_response(data["rg"], data["vpd"], parameters[:, _ALPHA],
-                                           parameters[:, _BETA0], parameters[:, _K], vpd0=vpd0,
-                                           curvature=settings["curvature"])
+        sides.append(light_response(data["rg"], data["vpd"], parameters[:, _ALPHA],
+                                    parameters[:, _BETA0], parameters[:, _K], vpd0=vpd0,
+                                    curvature=settings["curvature"]))
+        gpp += time_share * sides[-1]
         with np.errstate(over="ignore", invalid="ignore"):
             reco += time_share * parameters[:, _RREF] * np.exp(e0_side * arrhenius)
     if e0_fit is None:
@@ -621,7 +639,9 @@ def _partition(data, weight, settings) -> dict:
                   "width": np.full(count, np.nan), "window_e0": np.full(count, np.nan),
                   "window_e0_se": np.full(count, np.nan),
                   "source": np.full(count, "supplied", dtype=object)}
-    return {"gpp": gpp, "reco": reco, "e0": e0_record, "starts": starts, "ends": ends,
+    return {"gpp": gpp, "reco": reco, "e0": e0_record, "gpp_sides": sides,
+            "span_days": centres[used][after] - centres[used][before], "stretch": before,
+            "starts": starts, "ends": ends,
             "windows": windows, "theta": theta, "errors": errors, "rmse": rmse,
             "status": status, "reason": reason, "k_fixed": fixed[:, _K] | (theta[:, _K] == 0.0),
             "e0_fit": e0_fit, "rref_night": rref_night, "rref_night_se": rref_night_se,
