@@ -950,7 +950,7 @@ def shade_at_clock_shift(findings: list, verdict, rg, index, latitude: float,
     -----
     The clock check calls a shift a clock problem only from two thirds of a record
     (40 min on hourly records, :func:`fluxpart.clock.shift_threshold_minutes`), yet a
-    shift of 25 min already breaks the symmetry about solar noon the shading check
+    shift of 15 to 30 min already breaks the symmetry about solar noon the shading check
     rests on (Iqbal 1983 (m)): at a low sun the potential radiation of a record
     changes by tens of percent within half an hour, so the clearness of the early half
     falls and that of the late half rises. Hourly invented records stamped 25 to 35 min
