@@ -949,14 +949,15 @@ def shade_at_clock_shift(findings: list, verdict, rg, index, latitude: float,
     Notes
     -----
     The clock check calls a shift a clock problem only from two thirds of a record
-    (40 min on hourly records, :func:`fluxpart.clock.shift_threshold_minutes`), yet a
+    (20 min on half-hourly and 40 min on hourly records,
+    :func:`fluxpart.clock.shift_threshold_minutes`), yet a
     shift of 15 to 30 min already breaks the symmetry about solar noon the shading check
     rests on (Iqbal 1983 (m)): at a low sun the potential radiation of a record
     changes by tens of percent within half an hour, so the clearness of the early half
     falls and that of the late half rises. Hourly invented records stamped 25 to 35 min
-    late or early (a ``utc_offset`` of 9.5 for 10, a longitude 7.5° off) were named as
-    a sensor shaded in the morning or afternoon, with the advice to move it, while the
-    clock check said "consistent". A clock moves the peak and the rise and fall of Rg
+    late or early (a ``utc_offset`` of 9.5 for 10, a longitude 7.5° off) and half-hourly
+    ones 15 to 19 min off at 5° N were named as a sensor shaded in the morning or
+    afternoon, with the advice to move it, while the clock check said "consistent". A clock moves the peak and the rise and fall of Rg
     by the same minutes; a shade moves the edge on its side far more than the peak
     (the clock check's own test, :func:`fluxpart.clock.check_clock`). So the finding is
     judged again against the sun moved by the shift only where the two agree, and is
