@@ -160,11 +160,21 @@ def named_in_failure(findings):
     findings : list of fluxpart.preflight.Finding
         The record's preflight findings.
 
+    Yields
+    ------
+    None
+        The block runs unchanged; only an error it raises is reworded.
+
     Raises
     ------
     InsufficientDataError
         The error raised within, its message followed by the note where the findings
         hold one (the same error class, chained to the original).
+
+    References
+    ----------
+    Osmond (1978) and Burba et al. (2008), as in :func:`uptake_note` (m): the causes
+    the note names.
     """
     note = next((f.message for f in findings if f.stage == STAGE), None)
     try:

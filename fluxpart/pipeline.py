@@ -366,8 +366,12 @@ def _clock_and_preflight(frame, site, config, interval, geometry, is_night, scre
         frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),
         screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval,
         reader.get("columns"), sun_elevation=geometry["sun_elevation"].to_numpy())
-    return verdict, preflight.defer_to_clock(findings, None if verdict is None
-                                             else verdict.status)
+    findings = preflight.defer_to_clock(findings, None if verdict is None else verdict.status)
+    if verdict is not None:
+        findings = preflight.shade_at_clock_shift(
+            findings, verdict, screens.screened["rg"].to_numpy(dtype=float), frame.index,
+            site.latitude, site.longitude, site.utc_offset, interval, reader.get("columns"))
+    return verdict, findings
 
 
 def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, *,

@@ -85,7 +85,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from . import night_uptake
+from . import night_uptake, solar
 from .column_faults import (
     censored_nee,
     delayed_tair,
@@ -115,7 +115,7 @@ from .uncertainty import gap_runs
 from .ustar import assign_seasons
 
 __all__ = ["Finding", "MISSING_USTAR_SHARE", "RG_ABOVE_POTENTIAL_SHARE", "defer_to_clock",
-           "preflight"]
+           "preflight", "shade_at_clock_shift"]
 
 #: Share of sunlit records whose Rg exceeds the potential radiation (beyond the
 #: screening margins) above which the screen's rejections are reported as clock or
@@ -906,6 +906,101 @@ def defer_to_clock(findings: list, clock_status: str | None) -> list:
         return list(findings)
     return [finding for finding in findings if finding.stage not in _NOON_SYMMETRY_STAGES]
 
+
+def shade_at_clock_shift(findings: list, verdict, rg, index, latitude: float,
+                         longitude: float, utc_offset: float, interval_minutes: float,
+                         columns=None) -> list:
+    """`findings` without a shaded-Rg finding that a clock shift below the clock check's
+    threshold explains.
+
+    Parameters
+    ----------
+    findings : list of Finding
+        The preflight's findings (after :func:`defer_to_clock`).
+    verdict : fluxpart.clock.ClockVerdict or None
+        The clock check's verdict; only ``"consistent"`` is judged here (a shift the
+        check names is left to :func:`defer_to_clock`). Its ``shift_minutes`` (the
+        median monthly shift of Rg's clear-sky peak against the sun the settings
+        predict, positive when Rg comes later) and the used months'
+        ``edge_shift_minutes`` (the shift of the midpoint of Rg's rise and fall) [min].
+    rg : array_like
+        The screened Rg the shading check read [W m-2].
+    index : pandas.DatetimeIndex
+        Interval starts, local standard time.
+    latitude, longitude : float
+        Site position [degrees north, degrees east].
+    utc_offset : float
+        Offset of the stamps' local standard time from UTC [hours].
+    interval_minutes : float
+        Record interval [min].
+    columns : dict, optional
+        Canonical name -> file column, as for :func:`preflight`.
+
+    Returns
+    -------
+    list of Finding
+        `findings` in their order, less the shaded-Rg finding where the peak and the
+        rise and fall of Rg are shifted alike (a clock: at least
+        :data:`_CLOCK_LIKE_MIN_SHIFT` minutes, the two within
+        :data:`_CLOCK_LIKE_AGREEMENT` of the shift) and
+        :func:`fluxpart.column_faults.shaded_rg` finds no shade against the sun moved by
+        that shift (the potential radiation of the stamps less ``shift_minutes``).
+
+    Notes
+    -----
+    The clock check calls a shift a clock problem only from two thirds of a record
+    (20 min on half-hourly and 40 min on hourly records,
+    :func:`fluxpart.clock.shift_threshold_minutes`), yet a
+    shift of 15 to 30 min already breaks the symmetry about solar noon the shading check
+    rests on (Iqbal 1983 (m)): at a low sun the potential radiation of a record
+    changes by tens of percent within half an hour, so the clearness of the early half
+    falls and that of the late half rises. Hourly invented records stamped 25 to 35 min
+    late or early (a ``utc_offset`` of 9.5 for 10, a longitude 7.5° off) and half-hourly
+    ones 15 to 19 min off at 5° N were named as a sensor shaded in the morning or
+    afternoon, with the advice to move it, while the clock check said "consistent". A clock moves the peak and the rise and fall of Rg
+    by the same minutes; a shade moves the edge on its side far more than the peak
+    (the clock check's own test, :func:`fluxpart.clock.check_clock`). So the finding is
+    judged again against the sun moved by the shift only where the two agree, and is
+    kept where a shade remains.
+
+    References
+    ----------
+    Iqbal, M. (1983). An Introduction to Solar Radiation. Academic Press (m).
+    """
+    findings = list(findings)
+    if verdict is None or verdict.status != "consistent" \
+            or not any(finding.stage in _NOON_SYMMETRY_STAGES for finding in findings):
+        return findings
+    shift = float(verdict.shift_minutes)
+    months = verdict.months
+    if not np.isfinite(shift) or abs(shift) < _CLOCK_LIKE_MIN_SHIFT \
+            or not isinstance(months, pd.DataFrame) \
+            or not {"used", "edge_shift_minutes"} <= set(months.columns):
+        return findings
+    edges = months.loc[months["used"].to_numpy(dtype=bool), "edge_shift_minutes"]
+    edges = edges.to_numpy(dtype=float)
+    edges = edges[np.isfinite(edges)]
+    if not edges.size or abs(float(np.median(edges)) - shift) > \
+            _CLOCK_LIKE_AGREEMENT * abs(shift):
+        return findings
+    index = pd.DatetimeIndex(index)
+    moved = solar.potential_radiation(index - pd.Timedelta(minutes=shift), latitude,
+                                      longitude, utc_offset, interval_minutes=interval_minutes)
+    if shaded_rg(np.asarray(rg, dtype=float), np.asarray(moved, dtype=float), index,
+                 columns) is not None:
+        return findings
+    return [finding for finding in findings if finding.stage not in _NOON_SYMMETRY_STAGES]
+
+
+#: Smallest measured shift of Rg [min] that :func:`shade_at_clock_shift` takes for a
+#: clock: the clock check's own tolerance (shifts within 10 min of each other agree).
+_CLOCK_LIKE_MIN_SHIFT = 10.0
+#: Largest difference between the peak's and the edges' shift, as a share of the
+#: shift, that :func:`shade_at_clock_shift` takes for a clock [1]. Our choice: on
+#: pvlib-built invented hourly and half-hourly records (5° to 65° N and 34.5° S) a
+#: clock shift of 20 to 35 min gave at most 0.05, the direct beam blocked below 25°
+#: of elevation on one side at least 0.45.
+_CLOCK_LIKE_AGREEMENT = 0.25
 
 def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, rg_high,
               latitude: float, config, interval_minutes: float, sources=None, *,

@@ -383,7 +383,27 @@ def _later(declared: str, actual: str) -> bool:
 
 def parse_like(cells: pd.Series, time_format: str) -> pd.DatetimeIndex | None:
     """Cells parsed under `time_format` where the first non-empty one parses, else None
-    (a column of numbers or words is no stamp column)."""
+    (a column of numbers or words is no stamp column).
+
+    Parameters
+    ----------
+    cells : pandas.Series
+        The cells of one column of the file, as text.
+    time_format : str
+        ``[input] time_format``: a ``strptime`` format or ``"ISO8601"``.
+
+    Returns
+    -------
+    pandas.DatetimeIndex or None
+        The parsed stamps (NaT where a cell does not parse; naive, as written), or None
+        where the first non-empty cell does not parse, every cell is empty, or the
+        stamps carry a UTC offset (the reader's own stamps are then converted first).
+
+    References
+    ----------
+    Python Software Foundation. datetime: strftime() and strptime() format codes
+    (the Python standard library documentation) (m); ISO 8601-1:2019 (m).
+    """
     text = cells.astype(str).str.strip()
     filled = text[text != ""]
     if not len(filled):

@@ -86,3 +86,30 @@ def test_readme_output_files_name_every_table_a_result_folder_holds():
     missing = [name for name in _RESULT_TABLES if f"`{name}.parquet`" not in section]
     assert not missing, missing
     assert "`parameters_*.parquet`" in section and "`manifest.json`" in section
+
+
+def test_the_public_functions_of_the_0_23_modules_have_numpy_docstrings():
+    """The house rule (DEVELOPERS.md, Rules of the house): each method's docstring in the
+    numpydoc layout (numpydoc's docstring standard, common practice) with its
+    Parameters, Returns (or Yields) and a References section. Checked on the modules
+    0.23.0 added, whose helpers lacked some (review28)."""
+    import importlib
+    import inspect
+
+    lacking = []
+    for name in ("night_uptake", "stamp_places", "unit_labels", "ustar_fixed",
+                 "input_changes", "partition.pieces", "settings_notes"):
+        module = importlib.import_module(f"fluxpart.{name}")
+        names = getattr(module, "__all__", None) or [
+            key for key, value in vars(module).items() if not key.startswith("_")
+            and inspect.isfunction(value) and value.__module__ == module.__name__]
+        for public in names:
+            member = getattr(module, public)
+            if not inspect.isfunction(member):
+                continue
+            text = inspect.getdoc(member) or ""
+            for section in ("Parameters", ("Returns", "Yields"), "References"):
+                options = section if isinstance(section, tuple) else (section,)
+                if not any(f"{option}\n{'-' * len(option)}" in text for option in options):
+                    lacking.append(f"{name}.{public}: {options[0]}")
+    assert not lacking, lacking

@@ -65,6 +65,13 @@ def break_times(times, breaks) -> np.ndarray:
     numpy.ndarray
         Sorted distinct start times of the second and later pieces [as `times`];
         empty where there are no breaks.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439 (windows
+    interpolated between their centres); Lasslop, G. et al. (2010). Global Change
+    Biology 16:187–208 (windows moved along the record). The cut at events is our
+    rule (module docstring).
     """
     times = np.asarray(times, dtype=float)
     if breaks is None:
@@ -89,6 +96,13 @@ def piece_of(values, edges) -> np.ndarray:
     numpy.ndarray of int
         0 for the first piece; a time at an edge lies after it, as a record starting at
         an event's time does.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439 (windows
+    interpolated between their centres); Lasslop, G. et al. (2010). Global Change
+    Biology 16:187–208 (windows moved along the record). The cut at events is our
+    rule (module docstring).
     """
     return np.searchsorted(edges, values, side="right")
 
@@ -213,6 +227,13 @@ def piece_interp(times, centres, values, edges) -> tuple:
         the interpolation over all centres (the pieces beside it) [as `values`].
     borrowed : numpy.ndarray of bool
         Records of pieces with no centre of their own.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439 (windows
+    interpolated between their centres); Lasslop, G. et al. (2010). Global Change
+    Biology 16:187–208 (windows moved along the record). The cut at events is our
+    rule (module docstring).
     """
     times = np.asarray(times, dtype=float)
     centres = np.asarray(centres, dtype=float)
@@ -256,6 +277,13 @@ def piece_neighbours(times, centres, edges, neighbours) -> tuple:
         takes those of the whole record (the pieces beside it).
     share : numpy.ndarray
         Time share of `after` [1].
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439 (windows
+    interpolated between their centres); Lasslop, G. et al. (2010). Global Change
+    Biology 16:187–208 (windows moved along the record). The cut at events is our
+    rule (module docstring).
     """
     times = np.asarray(times, dtype=float)
     before, after, share = neighbours(times, centres)
@@ -291,6 +319,13 @@ def pieces_without_windows(index, breaks, centres) -> list:
     list of (int, int)
         First and last record position of each piece without a window centre, in
         time order; empty without breaks.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439 (windows
+    interpolated between their centres); Lasslop, G. et al. (2010). Global Change
+    Biology 16:187–208 (windows moved along the record). The cut at events is our
+    rule (module docstring).
     """
     if len(index) == 0:
         return []
@@ -329,6 +364,13 @@ def window_notes(index, breaks, night_windows=None, day_parameters=None) -> list
         named, or where several, their number and the first three): their records took
         the windows of the pieces beside them (:func:`piece_interp`,
         :func:`piece_neighbours`). Empty without breaks.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439 (windows
+    interpolated between their centres); Lasslop, G. et al. (2010). Global Change
+    Biology 16:187–208 (windows moved along the record). The cut at events is our
+    rule (module docstring).
     """
     notes = []
     tables = (("nighttime", night_windows, None), ("daytime", day_parameters, "accepted"))
