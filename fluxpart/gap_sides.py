@@ -46,6 +46,12 @@ def long_gaps(filled, records_per_day: int, min_days: float = MIN_GAP_DAYS, brea
     -------
     starts, lengths : numpy.ndarray of int
         First record of each long gap and its length [records].
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11, 1424–1439 (marginal
+    distribution sampling's ±7-day first window); Richardson, A. D. & Hollinger, D. Y.
+    (2007). Agric. For. Meteorol. 147, 199–208 (long gaps carry most of the
+    gap-filling error). The two one-sided fills are our rule (module docstring).
     """
     filled = np.asarray(filled, dtype=bool)
     edges = np.diff(np.concatenate([[0], filled.astype(np.int8), [0]]))
@@ -80,6 +86,12 @@ def one_sided_fills(nee_measured, starts, lengths, fill):
         before the gap (those from the gap's end on hidden) and from those after it
         (those up to the gap's start hidden); NaN outside the gaps and where a fill
         found no donor.
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11, 1424–1439 (marginal
+    distribution sampling's ±7-day first window); Richardson, A. D. & Hollinger, D. Y.
+    (2007). Agric. For. Meteorol. 147, 199–208 (long gaps carry most of the
+    gap-filling error). The two one-sided fills are our rule (module docstring).
     """
     nee = np.asarray(nee_measured, dtype=float)
     before = np.full(nee.size, np.nan)
@@ -210,6 +222,12 @@ def state_change_notes(index, fill, before, after, interval_minutes: int,
         over the whole gap) is at least half its year's gap-filling part (a quarter of
         its variance or more): its dates, the sums of its fills from each side alone
         and as filled [g C m-2], and that 1 sigma.
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11, 1424–1439 (marginal
+    distribution sampling's ±7-day first window); Richardson, A. D. & Hollinger, D. Y.
+    (2007). Agric. For. Meteorol. 147, 199–208 (long gaps carry most of the
+    gap-filling error). The two one-sided fills are our rule (module docstring).
     """
     fill = np.asarray(fill, dtype=float)
     before = np.asarray(before, dtype=float)

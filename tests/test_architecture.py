@@ -98,7 +98,7 @@ def test_the_public_functions_of_the_0_23_modules_have_numpy_docstrings():
 
     lacking = []
     for name in ("night_uptake", "stamp_places", "unit_labels", "ustar_fixed",
-                 "input_changes", "partition.pieces", "settings_notes"):
+                 "input_changes", "partition.pieces", "settings_notes", "gap_sides"):
         module = importlib.import_module(f"fluxpart.{name}")
         names = getattr(module, "__all__", None) or [
             key for key, value in vars(module).items() if not key.startswith("_")

@@ -165,3 +165,60 @@ def test_state_change_notes_name_a_gap_that_dominates_the_gapfill_part():
                               pd.Series({2021: sigma})) == []
     assert state_change_notes(index, fill, before, after, 30,
                               pd.Series({2021: 3 * sigma})) == []
+
+
+def test_daytime_gpp_of_the_two_windows_and_a_long_stretch_without_windows():
+    """Known-truth recovery (invented record, the daytime test module's generator): with a
+    45-day NEE outage in spring the daytime method interpolates GPP between the windows on
+    either side; each record's GPP is the time-weighted mean of the two windows' GPP, and
+    the outage's records lie between window centres more than 14 days apart, whose
+    light responses differ (the canopy grows in between)."""
+    from test_daytime import _inputs, _synthetic_record
+
+    from fluxpart.partition.daytime import partition_daytime
+
+    record = _synthetic_record(3)
+    index = record["index"]
+    outage = (index >= "2023-03-20") & (index < "2023-05-04")
+    record["nee_measured"] = np.where(outage, np.nan, record["nee_measured"])
+    result = partition_daytime(**_inputs(record))
+    weights = result.gpp - result.gpp_before
+    span = result.gpp_after - result.gpp_before
+    share = np.divide(weights, span, out=np.zeros_like(weights), where=np.abs(span) > 1e-9)
+    assert np.allclose(result.gpp, (1 - share) * result.gpp_before + share * result.gpp_after)
+    assert ((share >= -1e-9) & (share <= 1 + 1e-9)).all()
+    wide = result.span_days > 14
+    assert wide[outage].mean() > 0.5 and not wide[~outage & (index.month == 7)].any()
+    day = wide & (record["rg"] > 0)
+    assert result.gpp_after[day].sum() > 1.2 * result.gpp_before[day].sum()  # growth
+    assert np.unique(result.stretch[wide]).size <= 2
+
+
+def test_period_uncertainty_adds_the_light_response_change_to_daytime_gpp():
+    """The daytime GPP parameter part grows by D²/12 per stretch (F = m here), in
+    quadrature; without the sides it is as before."""
+    from fluxpart.uncertainty import UncertaintyInputs, period_uncertainty
+
+    index = pd.date_range("2021-04-01", periods=40 * 48, freq="30min")
+    n = len(index)
+    zeros = np.zeros(n)
+    fluxes = pd.DataFrame({name: np.full(n, 2.0) for name in (
+        "nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")}, index=index)
+    common = dict(measured=np.ones(n, dtype=bool), noise_sigma=zeros,
+                  is_night=np.zeros(n, dtype=bool), fluxes=fluxes, runs={}, gapfill_model=None,
+                  e0_delta=zeros, night_window=np.zeros(n, dtype=int),
+                  night_relative_se=np.full(n, np.nan), day_window=np.zeros(n, dtype=int),
+                  day_relative_se=np.full(n, 0.01))
+    stretch = np.where(np.arange(n) < 20 * 48, 0, 1)
+    before = np.where(stretch == 0, 1.0, np.nan)       # first stretch only: 1 and 3
+    after = np.where(stretch == 0, 3.0, np.nan)
+    plain = period_uncertainty(UncertaintyInputs(**common), np.zeros(n, int), 30)
+    sided = period_uncertainty(UncertaintyInputs(**common, day_gpp_before=before,
+                                                 day_gpp_after=after, day_stretch=stretch),
+                               np.zeros(n, int), 30)
+    grams = 1800 * 12.011e-6
+    extra = (20 * 48 * 2.0) ** 2 / 12 * grams**2
+    assert sided["gpp_daytime_uncertainty_parameters"].iloc[0] ** 2 == pytest.approx(
+        plain["gpp_daytime_uncertainty_parameters"].iloc[0] ** 2 + extra)
+    assert sided["reco_daytime_uncertainty_parameters"].iloc[0] == \
+        plain["reco_daytime_uncertainty_parameters"].iloc[0]
