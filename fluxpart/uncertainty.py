@@ -2256,6 +2256,14 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       daytime coverage on the other-physics site-years from 83.3 / 83.3 % to
       88.1 / 85.7 %, and the mean nighttime interval width by 7–9 % (most in
       site-years with weeks of gaps).
+      Daytime GPP across a stretch of more than 14 days without a daytime
+      window in use (an NEE outage of weeks; since 0.24.0): each record's GPP is
+      the time-weighted mean of the light responses of the windows on either
+      side, and a change of the canopy from the one to the other at an unknown
+      time within the stretch adds ``(m − F)² + D²/12`` per stretch and period
+      (:func:`fluxpart.gap_sides.state_change_variance`, the sums of the two
+      windows' GPP over the stretch's records), as for a long NEE gap; the
+      Rref bridge above covers the respiration only.
     - respiration temperature (structural, where both air and soil temperature
       exist): √w · |Σ(Reco(other temperature) − Reco)| of the nighttime method,
       w the weight the night data give the other temperature
