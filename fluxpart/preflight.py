@@ -199,6 +199,13 @@ _REPEATED_VARIABLES = ("nee", "rg", "tair", "vpd", "ustar", "tsoil", "rh")
 # a copy; distinct values keep out a stuck or zero-filled run (named above). Our choice.
 _REPEATED_NEE_SHARE_OF_DAY = 0.5
 _REPEATED_NEE_MAX_LAG_DAYS = 366
+# The same at a lag of any whole number of records (a column pasted one row off, or at an
+# offset of days and hours: a spreadsheet's paste needs no whole day): measured values
+# are keyed by runs of this many in a row, so a copy is found in one pass over the record
+# rather than by comparing every lag. Eight written values of a flux agree with eight
+# others by chance about never, and half a day of them in a row (as above) never. Our
+# choice.
+_REPEATED_NEE_KEY_VALUES = 8
 # Night-mask check (our choice): with the sun below the horizon a pyranometer reads
 # about 0 (a few W m-2 of thermal offset, negative or positive); Rg at or above the
 # night threshold in more than half of at least a day of such records is an offset.
@@ -586,6 +593,99 @@ def _repeated_nee(frame: pd.DataFrame, interval_minutes: float) -> list:
         "missing in a copy of the file"), False)]
 
 
+def _repeated_nee_any_lag(frame: pd.DataFrame, interval_minutes: float) -> list:
+    """Runs of measured NEE equal, value for value, to the measured NEE any number of
+    records earlier (the flux column pasted over other records, not a whole number of
+    days away: :func:`_repeated_nee` compares whole days only).
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The record on its interval stamps, with column ``nee`` [µmol m-2 s-1] (NaN =
+        missing) and any drivers of :data:`_REPEATED_VARIABLES`.
+    interval_minutes : float
+        Record interval [min].
+
+    Returns
+    -------
+    list of Finding
+        One warning (stage ``input (repeated NEE)``) for the longest run of at least
+        half a day of records' worth of measured NEE (with half as many distinct
+        values) equal to the measured NEE a fixed number of records earlier; empty
+        where none is.
+
+    Notes
+    -----
+    A measured flux carries a random error of tens of percent from record to record
+    (Richardson et al. 2006 (m)), so its written digits never repeat over runs of
+    records, at any lag; a block of a flux column pasted over other rows does, at the
+    lag of the paste. Measured values are keyed by :data:`_REPEATED_NEE_KEY_VALUES` in
+    a row (gaps skipped: a pasted block carries its gaps along) and each key's first
+    occurrence found by hashing, so every lag is searched in one pass. A stuck or
+    zero-filled run repeats itself at growing lags and has few distinct values, so is
+    not named here (the stuck-sensor check names it). On the example site NEE of the
+    first half-year pasted over the second one record off the whole days moved annual
+    NEE by -262.3, nighttime GPP by -386.6 and Reco by -648.9 g C m-2 without a word
+    (round mistakes25).
+
+    References
+    ----------
+    Richardson, A. D. et al. (2006). A multi-site analysis of random error in
+    tower-based measurements of carbon and energy fluxes. Agricultural and Forest
+    Meteorology 136, 1-18 (m).
+    """
+    if "nee" not in frame.columns:
+        return []
+    index = pd.DatetimeIndex(frame.index)
+    per_day = int(round(1440.0 / interval_minutes))
+    needed = max(2, int(np.ceil(_REPEATED_NEE_SHARE_OF_DAY * per_day)))
+    width = _REPEATED_NEE_KEY_VALUES
+    nee = pd.to_numeric(frame["nee"], errors="coerce").to_numpy(dtype=float)
+    positions = np.flatnonzero(np.isfinite(nee))
+    if positions.size < needed + width:
+        return []
+    windows = np.lib.stride_tricks.sliding_window_view(nee[positions], width)
+    codes = pd.factorize(pd.util.hash_pandas_object(pd.DataFrame(windows), index=False))[0]
+    order = np.arange(codes.size)
+    first = pd.Series(order).groupby(codes).transform("min").to_numpy()
+    lag = positions[order] - positions[first]
+    copied = (first < order) & (order - first >= width)
+    best = None
+    start = 0
+    while start < codes.size:
+        if not copied[start]:
+            start += 1
+            continue
+        end = start + 1
+        while end < codes.size and copied[end] and lag[end] == lag[start]:
+            end += 1
+        records = positions[start:end - 1 + width]
+        sources = records - lag[start]
+        if (records.size >= needed and np.unique(nee[records]).size >= needed / 2
+                and np.array_equal(nee[records], nee[sources])
+                and (best is None or records.size > best[1].size)):
+            best = (int(lag[start]), records)
+        start = end
+    if best is None:
+        return []
+    shift, records = best
+    first_record, last_record = int(records[0]), int(records[-1])
+    drivers = [n for n in _REPEATED_VARIABLES if n != "nee" and n in frame.columns]
+    copied_drivers = [n for n in drivers if np.array_equal(
+        *(pd.to_numeric(frame[n], errors="coerce").to_numpy(dtype=float)[r]
+          for r in (records, records - shift)), equal_nan=True)]
+    others = (f", and so do {', '.join(copied_drivers)} (rows pasted twice)" if copied_drivers
+              else ", while the drivers do not (the flux column pasted over other records)")
+    return [Finding("input (repeated NEE)", (
+        f"{records.size} measured NEE values {index[first_record]:%Y-%m-%d %H:%M} .. "
+        f"{index[last_record]:%Y-%m-%d %H:%M} (interval starts) repeat exactly, value for "
+        f"value, the NEE {shift} records ({shift * interval_minutes / 1440.0:.2f} days) "
+        f"earlier (from {index[first_record - shift]:%Y-%m-%d %H:%M}){others}: measured "
+        "fluxes never repeat so, and the copies would enter as measured (against the time "
+        "of day and the weather of their own records); mark them missing in a copy of "
+        "the file"), False)]
+
+
 def _long_gaps(index: pd.DatetimeIndex, nee: np.ndarray, interval_minutes: float) -> list:
     """Gaps of measured NEE longer than the largest full window of quality A.
 
@@ -960,7 +1060,8 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
                      if f"{finding.stage[:-1]} flag)" not in named]
         findings += _written_twice(frame, potential, interval_minutes, sources)
         repeated = _repeated_records(frame, interval_minutes)
-        findings += repeated or _repeated_nee(frame, interval_minutes)
+        findings += (repeated or _repeated_nee(frame, interval_minutes)
+                     or _repeated_nee_any_lag(frame, interval_minutes))
         findings += _column_faults(screened, potential, interval_minutes, sources,
                                    is_night)
         findings += _gapless(frame, interval_minutes, sources)
