@@ -593,6 +593,69 @@ def _repeated_nee(frame: pd.DataFrame, interval_minutes: float) -> list:
         "missing in a copy of the file"), False)]
 
 
+def _copied_run(values: np.ndarray, interval_minutes: float) -> tuple | None:
+    """The longest run of a column's present values equal, value for value, to its
+    values a fixed number of records earlier.
+
+    Parameters
+    ----------
+    values : numpy.ndarray
+        One column of the record, in its unit (NaN = missing).
+    interval_minutes : float
+        Record interval [min].
+
+    Returns
+    -------
+    tuple or None
+        ``(lag, records)``: the lag [records] and the positions of the run's present
+        values (at least half a day of records' worth, with half as many distinct
+        values, :data:`_REPEATED_NEE_SHARE_OF_DAY`), or None where no run is.
+
+    Notes
+    -----
+    Present values are keyed by :data:`_REPEATED_NEE_KEY_VALUES` in a row (gaps
+    skipped: a pasted block carries its gaps along) and each key's first occurrence
+    found by hashing, so every lag is searched in one pass; a run is a sequence of keys
+    whose first occurrences lie the same number of records earlier, checked value for
+    value. A stuck or zero-filled run repeats itself at growing lags and has few
+    distinct values, so is never a run here.
+
+    References
+    ----------
+    Richardson, A. D. et al. (2006). A multi-site analysis of random error in
+    tower-based measurements of carbon and energy fluxes. Agricultural and Forest
+    Meteorology 136, 1-18 (m).
+    """
+    per_day = int(round(1440.0 / interval_minutes))
+    needed = max(2, int(np.ceil(_REPEATED_NEE_SHARE_OF_DAY * per_day)))
+    width = _REPEATED_NEE_KEY_VALUES
+    positions = np.flatnonzero(np.isfinite(values))
+    if positions.size < needed + width:
+        return None
+    windows = np.lib.stride_tricks.sliding_window_view(values[positions], width)
+    codes = pd.factorize(pd.util.hash_pandas_object(pd.DataFrame(windows), index=False))[0]
+    order = np.arange(codes.size)
+    first = pd.Series(order).groupby(codes).transform("min").to_numpy()
+    lag = positions[order] - positions[first]
+    copied = (first < order) & (order - first >= width)
+    best = None
+    start = 0
+    while start < codes.size:
+        if not copied[start]:
+            start += 1
+            continue
+        end = start + 1
+        while end < codes.size and copied[end] and lag[end] == lag[start]:
+            end += 1
+        records = positions[start:end - 1 + width]
+        if (records.size >= needed and np.unique(values[records]).size >= needed / 2
+                and np.array_equal(values[records], values[records - lag[start]])
+                and (best is None or records.size > best[1].size)):
+            best = (int(lag[start]), records)
+        start = end
+    return best
+
+
 def _repeated_nee_any_lag(frame: pd.DataFrame, interval_minutes: float) -> list:
     """Runs of measured NEE equal, value for value, to the measured NEE any number of
     records earlier (the flux column pasted over other records, not a whole number of
@@ -637,35 +700,8 @@ def _repeated_nee_any_lag(frame: pd.DataFrame, interval_minutes: float) -> list:
     if "nee" not in frame.columns:
         return []
     index = pd.DatetimeIndex(frame.index)
-    per_day = int(round(1440.0 / interval_minutes))
-    needed = max(2, int(np.ceil(_REPEATED_NEE_SHARE_OF_DAY * per_day)))
-    width = _REPEATED_NEE_KEY_VALUES
     nee = pd.to_numeric(frame["nee"], errors="coerce").to_numpy(dtype=float)
-    positions = np.flatnonzero(np.isfinite(nee))
-    if positions.size < needed + width:
-        return []
-    windows = np.lib.stride_tricks.sliding_window_view(nee[positions], width)
-    codes = pd.factorize(pd.util.hash_pandas_object(pd.DataFrame(windows), index=False))[0]
-    order = np.arange(codes.size)
-    first = pd.Series(order).groupby(codes).transform("min").to_numpy()
-    lag = positions[order] - positions[first]
-    copied = (first < order) & (order - first >= width)
-    best = None
-    start = 0
-    while start < codes.size:
-        if not copied[start]:
-            start += 1
-            continue
-        end = start + 1
-        while end < codes.size and copied[end] and lag[end] == lag[start]:
-            end += 1
-        records = positions[start:end - 1 + width]
-        sources = records - lag[start]
-        if (records.size >= needed and np.unique(nee[records]).size >= needed / 2
-                and np.array_equal(nee[records], nee[sources])
-                and (best is None or records.size > best[1].size)):
-            best = (int(lag[start]), records)
-        start = end
+    best = _copied_run(nee, interval_minutes)
     if best is None:
         return []
     shift, records = best
@@ -684,6 +720,74 @@ def _repeated_nee_any_lag(frame: pd.DataFrame, interval_minutes: float) -> list:
         "fluxes never repeat so, and the copies would enter as measured (against the time "
         "of day and the weather of their own records); mark them missing in a copy of "
         "the file"), False)]
+
+
+# Drivers pasted over other records, as NEE above: u* (a 30-minute turbulence statistic
+# with a sampling error of ten percent or more from record to record, Lenschow et al.
+# 1994 (m)) and Rg (by day clouds and the sun's path, which moves with the declination
+# from one day to the next, change its last digits; the night's zeros repeat at growing
+# lags, so never make a run) decide which records are filtered, filled and fitted.
+_REPEATED_DRIVERS = ("ustar", "rg")
+
+
+def _repeated_drivers(frame: pd.DataFrame, interval_minutes: float, sources=None) -> list:
+    """Runs of u* or Rg equal, value for value, to the same column's values a fixed
+    number of records earlier (the column pasted over other records).
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The record on its interval stamps, with any of the columns of
+        :data:`_REPEATED_DRIVERS` (u* [m s-1], Rg [W m-2]; NaN = missing).
+    interval_minutes : float
+        Record interval [min].
+    sources : dict, optional
+        Canonical name -> file column, to name the column in the message.
+
+    Returns
+    -------
+    list of Finding
+        One warning per column (stage ``input (repeated <name>)``) with its longest run
+        (:func:`_copied_run`); empty where none is.
+
+    Notes
+    -----
+    On the example site u* of the first half-year pasted over the second one record
+    off the whole days moved annual NEE by -31.7, nighttime GPP by -57.8 and Reco by
+    -89.5 g C m-2, named only as a seasonal u* threshold; Rg so pasted whole days off
+    moved nighttime GPP by -419.8 and daytime GPP by -400.3 g C m-2, named only as Rg
+    above the potential radiation (round mistakes25). Records that repeat in every
+    variable are named by :func:`_repeated_records`, and NEE by :func:`_repeated_nee`.
+
+    References
+    ----------
+    Lenschow, D. H., Mann, J. and Kristensen, L. (1994). How long is long enough when
+    measuring fluxes and other turbulence statistics? Journal of Atmospheric and
+    Oceanic Technology 11, 661-673 (m).
+    """
+    index = pd.DatetimeIndex(frame.index)
+    findings = []
+    for name in _REPEATED_DRIVERS:
+        if name not in frame.columns:
+            continue
+        values = pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=float)
+        best = _copied_run(values, interval_minutes)
+        if best is None:
+            continue
+        shift, records = best
+        first_record, last_record = int(records[0]), int(records[-1])
+        column = (sources or {}).get(name, name)
+        findings.append(Finding(f"input (repeated {name})", (
+            f"{records.size} values of {name} (column {column!r}) "
+            f"{index[first_record]:%Y-%m-%d %H:%M} .. {index[last_record]:%Y-%m-%d %H:%M} "
+            f"(interval starts) repeat exactly, value for value, those {shift} records "
+            f"({shift * interval_minutes / 1440.0:.2f} days) earlier (from "
+            f"{index[first_record - shift]:%Y-%m-%d %H:%M}), while NEE does not: a "
+            "measured column never repeats so over half a day of records, so the column "
+            "looks pasted over other records, and the copies would filter, fill and fit "
+            "NEE against another time's values; mark them missing in a copy of the file"),
+            False))
+    return findings
 
 
 def _long_gaps(index: pd.DatetimeIndex, nee: np.ndarray, interval_minutes: float) -> list:
@@ -1060,8 +1164,9 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
                      if f"{finding.stage[:-1]} flag)" not in named]
         findings += _written_twice(frame, potential, interval_minutes, sources)
         repeated = _repeated_records(frame, interval_minutes)
-        findings += (repeated or _repeated_nee(frame, interval_minutes)
-                     or _repeated_nee_any_lag(frame, interval_minutes))
+        repeated = (repeated or _repeated_nee(frame, interval_minutes)
+                    or _repeated_nee_any_lag(frame, interval_minutes))
+        findings += repeated or _repeated_drivers(frame, interval_minutes, sources)
         findings += _column_faults(screened, potential, interval_minutes, sources,
                                    is_night)
         findings += _gapless(frame, interval_minutes, sources)
