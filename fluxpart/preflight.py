@@ -92,6 +92,7 @@ from .column_faults import (
     delayed_tair_in_a_year,
     dew_point_as_tair,
     flag_as_measurement,
+    flat_air_temperature,
     gapless_nee,
     interpolated_nee,
     months_rising_with_light,
@@ -422,6 +423,13 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
         text = rg_blank_in_the_dark(screened["rg"].to_numpy(dtype=float), potential, names)
         if text:
             findings.append(Finding("input (rg dark)", text, False))
+    if {"tair", "rg"} <= set(screened.columns):
+        # an air temperature without a diurnal course (round mistakes25)
+        text = flat_air_temperature(screened["tair"].to_numpy(dtype=float),
+                                    screened["rg"].to_numpy(dtype=float), potential,
+                                    screened.index, interval_minutes, names)
+        if text:
+            findings.append(Finding("input (tair flat)", text, False))
     if "nee" in screened.columns:
         text = interpolated_nee(screened["nee"].to_numpy(dtype=float), interval_minutes,
                                 screened.index, names)
