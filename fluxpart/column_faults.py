@@ -37,7 +37,9 @@ physics the true columns must obey:
   (:func:`flag_as_measurement`): a measured quantity takes many values over a month;
 * a flux that already holds the storage term mapped as the turbulent flux beside a
   storage column (:func:`storage_in_turbulent_flux`): a turbulent flux trades against
-  the storage term from one night to the next, NEE does not.
+  the storage term from one night to the next, NEE does not;
+* an air temperature without a diurnal course (:func:`flat_air_temperature`): on clear
+  days the air near the ground warms by day and cools by night by several K.
 
 Each returns a one-line message (the caller's warning) or None. They only warn: the
 physics leaves rare true records on the far side of each criterion (see each
