@@ -37,7 +37,9 @@ physics the true columns must obey:
   (:func:`flag_as_measurement`): a measured quantity takes many values over a month;
 * a flux that already holds the storage term mapped as the turbulent flux beside a
   storage column (:func:`storage_in_turbulent_flux`): a turbulent flux trades against
-  the storage term from one night to the next, NEE does not.
+  the storage term from one night to the next, NEE does not;
+* an air temperature without a diurnal course (:func:`flat_air_temperature`): on clear
+  days the air near the ground warms by day and cools by night by several K.
 
 Each returns a one-line message (the caller's warning) or None. They only warn: the
 physics leaves rare true records on the far side of each criterion (see each
@@ -2360,3 +2362,96 @@ def rg_blank_in_the_dark(rg, potential, columns=None) -> str | None:
             "like this; a pyranometer reads 0 there within a few W m-2, so write 0 for the "
             "night in a copy of the file (as it is, every night is a driver gap: the daytime "
             "method's sums come out NaN and the clock check cannot judge)")
+
+
+# An air temperature without a diurnal course (our choice, physically argued): on clear
+# days the ground absorbs sunlight by day and loses long-wave radiation by night, so the
+# air near it warms and cools by several K (Oke 1987, ch. 2 and 7 (m); the diurnal range
+# over land is near 10 K on average, Easterling et al. 1997 (m)). The mean course of the
+# day over at least ten clear days (Rg a clearness of 0.6 of the potential or more)
+# spanning under 1 K is no measured air temperature: a daily mean or a daily value
+# interpolated to the records, or a deep soil probe, reads like this.
+_FLAT_TAIR_CLEARNESS = 0.6
+_FLAT_TAIR_MIN_DAYS = 10
+_FLAT_TAIR_RANGE = 1.0             # K
+_FLAT_TAIR_DAY_POTENTIAL = 50.0    # W m-2, the day's mean potential radiation
+
+
+def flat_air_temperature(tair, rg, potential, stamps, interval_minutes: float,
+                         columns=None) -> str | None:
+    """A message where the air temperature shows no diurnal course on clear days, or None.
+
+    Parameters
+    ----------
+    tair : array_like
+        Air temperature of each record [°C] (NaN = missing).
+    rg : array_like
+        Global radiation of each record [W m-2] (NaN = missing).
+    potential : array_like
+        Potential radiation of each record [W m-2].
+    stamps : array_like of datetime64
+        Interval starts of the records (a regular grid).
+    interval_minutes : float
+        Record interval [min].
+    columns : dict, optional
+        Canonical name -> file column, to name the column in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where fewer than :data:`_FLAT_TAIR_MIN_DAYS` clear days
+        (:data:`_FLAT_TAIR_CLEARNESS`, nine in ten records of Rg and tair present, a mean
+        potential radiation of :data:`_FLAT_TAIR_DAY_POTENTIAL` or more) are found, or
+        where the mean course of their air temperature about each day's mean spans
+        :data:`_FLAT_TAIR_RANGE` or more.
+
+    Notes
+    -----
+    On clear days the surface's radiation balance turns from a gain by day to a loss by
+    night and the air near the ground follows it by several K (Oke 1987 (m); the mean
+    diurnal range over land is about 10 K, Easterling et al. 1997 (m)). Averaging over
+    many clear days removes the weather's day-to-day changes and keeps that course. A
+    column without it is a daily mean (or daily values interpolated to the records) or a
+    deep soil probe mapped as the air temperature; on the example site a 24-h running
+    mean as tair moved nighttime GPP by -244.8, Reco by -243.5 and daytime GPP by
+    -198.4 g C m-2, named only as air and soil temperature swapped in July (round
+    mistakes25).
+
+    References
+    ----------
+    Oke, T. R. (1987). Boundary Layer Climates, 2nd ed. Methuen, London (m).
+    Easterling, D. R. et al. (1997). Maximum and minimum temperature trends for the
+    globe. Science 277, 364-367 (m).
+    """
+    tair = np.asarray(tair, dtype=float)
+    rg = np.asarray(rg, dtype=float)
+    potential = np.asarray(potential, dtype=float)
+    index = pd.DatetimeIndex(stamps)
+    if tair.size == 0 or not tair.size == rg.size == potential.size == len(index):
+        return None
+    per_day = int(round(1440.0 / interval_minutes))
+    day = index.normalize()
+    frame = pd.DataFrame({"tair": tair, "rg": rg, "potential": potential,
+                          "slot": ((index - day) / pd.Timedelta(minutes=interval_minutes))
+                          .astype(int)}, index=day)
+    daily = frame.groupby(level=0).agg(tair_n=("tair", "count"), rg_n=("rg", "count"),
+                                        rg=("rg", "mean"), potential=("potential", "mean"),
+                                        tair=("tair", "mean"))
+    clear = daily[(daily["tair_n"] >= 0.9 * per_day) & (daily["rg_n"] >= 0.9 * per_day)
+                  & (daily["potential"] >= _FLAT_TAIR_DAY_POTENTIAL)
+                  & (daily["rg"] >= _FLAT_TAIR_CLEARNESS * daily["potential"])]
+    if len(clear) < _FLAT_TAIR_MIN_DAYS:
+        return None
+    days = frame.loc[frame.index.isin(clear.index)]
+    anomaly = days["tair"] - clear["tair"].reindex(days.index).to_numpy()
+    course = anomaly.groupby(days["slot"].to_numpy()).mean()
+    span = float(course.max() - course.min())
+    if not np.isfinite(span) or span >= _FLAT_TAIR_RANGE:
+        return None
+    column = (columns or {}).get("tair", "tair")
+    return (f"tair (column {column!r}): over {len(clear)} clear days its mean course of the "
+            f"day spans only {span:.2f} K, where the air near the ground warms by day and "
+            "cools by night by several K on clear days: a daily mean (or daily values "
+            "spread over the records) or a deep soil probe reads like this, and the "
+            "respiration fitted to it loses its temperature response; map the measured "
+            "air temperature of each record")

@@ -92,6 +92,7 @@ from .column_faults import (
     delayed_tair_in_a_year,
     dew_point_as_tair,
     flag_as_measurement,
+    flat_air_temperature,
     gapless_nee,
     interpolated_nee,
     months_rising_with_light,
@@ -199,6 +200,13 @@ _REPEATED_VARIABLES = ("nee", "rg", "tair", "vpd", "ustar", "tsoil", "rh")
 # a copy; distinct values keep out a stuck or zero-filled run (named above). Our choice.
 _REPEATED_NEE_SHARE_OF_DAY = 0.5
 _REPEATED_NEE_MAX_LAG_DAYS = 366
+# The same at a lag of any whole number of records (a column pasted one row off, or at an
+# offset of days and hours: a spreadsheet's paste needs no whole day): measured values
+# are keyed by runs of this many in a row, so a copy is found in one pass over the record
+# rather than by comparing every lag. Eight written values of a flux agree with eight
+# others by chance about never, and half a day of them in a row (as above) never. Our
+# choice.
+_REPEATED_NEE_KEY_VALUES = 8
 # Night-mask check (our choice): with the sun below the horizon a pyranometer reads
 # about 0 (a few W m-2 of thermal offset, negative or positive); Rg at or above the
 # night threshold in more than half of at least a day of such records is an offset.
@@ -415,6 +423,13 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
         text = rg_blank_in_the_dark(screened["rg"].to_numpy(dtype=float), potential, names)
         if text:
             findings.append(Finding("input (rg dark)", text, False))
+    if {"tair", "rg"} <= set(screened.columns):
+        # an air temperature without a diurnal course (round mistakes25)
+        text = flat_air_temperature(screened["tair"].to_numpy(dtype=float),
+                                    screened["rg"].to_numpy(dtype=float), potential,
+                                    screened.index, interval_minutes, names)
+        if text:
+            findings.append(Finding("input (tair flat)", text, False))
     if "nee" in screened.columns:
         text = interpolated_nee(screened["nee"].to_numpy(dtype=float), interval_minutes,
                                 screened.index, names)
@@ -584,6 +599,203 @@ def _repeated_nee(frame: pd.DataFrame, interval_minutes: float) -> list:
         f"the NEE {days} day(s) earlier (from {index[first - lag]:%Y-%m-%d %H:%M}){others}: "
         "measured fluxes never repeat so, and the copies would enter as measured; mark them "
         "missing in a copy of the file"), False)]
+
+
+def _copied_run(values: np.ndarray, interval_minutes: float) -> tuple | None:
+    """The longest run of a column's present values equal, value for value, to its
+    values a fixed number of records earlier.
+
+    Parameters
+    ----------
+    values : numpy.ndarray
+        One column of the record, in its unit (NaN = missing).
+    interval_minutes : float
+        Record interval [min].
+
+    Returns
+    -------
+    tuple or None
+        ``(lag, records)``: the lag [records] and the positions of the run's present
+        values (at least half a day of records' worth, with half as many distinct
+        values, :data:`_REPEATED_NEE_SHARE_OF_DAY`), or None where no run is.
+
+    Notes
+    -----
+    Present values are keyed by :data:`_REPEATED_NEE_KEY_VALUES` in a row (gaps
+    skipped: a pasted block carries its gaps along) and each key's first occurrence
+    found by hashing, so every lag is searched in one pass; a run is a sequence of keys
+    whose first occurrences lie the same number of records earlier, checked value for
+    value. A stuck or zero-filled run repeats itself at growing lags and has few
+    distinct values, so is never a run here.
+
+    References
+    ----------
+    Richardson, A. D. et al. (2006). A multi-site analysis of random error in
+    tower-based measurements of carbon and energy fluxes. Agricultural and Forest
+    Meteorology 136, 1-18 (m).
+    """
+    per_day = int(round(1440.0 / interval_minutes))
+    needed = max(2, int(np.ceil(_REPEATED_NEE_SHARE_OF_DAY * per_day)))
+    width = _REPEATED_NEE_KEY_VALUES
+    positions = np.flatnonzero(np.isfinite(values))
+    if positions.size < needed + width:
+        return None
+    windows = np.lib.stride_tricks.sliding_window_view(values[positions], width)
+    codes = pd.factorize(pd.util.hash_pandas_object(pd.DataFrame(windows), index=False))[0]
+    order = np.arange(codes.size)
+    first = pd.Series(order).groupby(codes).transform("min").to_numpy()
+    lag = positions[order] - positions[first]
+    copied = (first < order) & (order - first >= width)
+    best = None
+    start = 0
+    while start < codes.size:
+        if not copied[start]:
+            start += 1
+            continue
+        end = start + 1
+        while end < codes.size and copied[end] and lag[end] == lag[start]:
+            end += 1
+        records = positions[start:end - 1 + width]
+        if (records.size >= needed and np.unique(values[records]).size >= needed / 2
+                and np.array_equal(values[records], values[records - lag[start]])
+                and (best is None or records.size > best[1].size)):
+            best = (int(lag[start]), records)
+        start = end
+    return best
+
+
+def _repeated_nee_any_lag(frame: pd.DataFrame, interval_minutes: float) -> list:
+    """Runs of measured NEE equal, value for value, to the measured NEE any number of
+    records earlier (the flux column pasted over other records, not a whole number of
+    days away: :func:`_repeated_nee` compares whole days only).
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The record on its interval stamps, with column ``nee`` [µmol m-2 s-1] (NaN =
+        missing) and any drivers of :data:`_REPEATED_VARIABLES`.
+    interval_minutes : float
+        Record interval [min].
+
+    Returns
+    -------
+    list of Finding
+        One warning (stage ``input (repeated NEE)``) for the longest run of at least
+        half a day of records' worth of measured NEE (with half as many distinct
+        values) equal to the measured NEE a fixed number of records earlier; empty
+        where none is.
+
+    Notes
+    -----
+    A measured flux carries a random error of tens of percent from record to record
+    (Richardson et al. 2006 (m)), so its written digits never repeat over runs of
+    records, at any lag; a block of a flux column pasted over other rows does, at the
+    lag of the paste. Measured values are keyed by :data:`_REPEATED_NEE_KEY_VALUES` in
+    a row (gaps skipped: a pasted block carries its gaps along) and each key's first
+    occurrence found by hashing, so every lag is searched in one pass. A stuck or
+    zero-filled run repeats itself at growing lags and has few distinct values, so is
+    not named here (the stuck-sensor check names it). On the example site NEE of the
+    first half-year pasted over the second one record off the whole days moved annual
+    NEE by -262.3, nighttime GPP by -386.6 and Reco by -648.9 g C m-2 without a word
+    (round mistakes25).
+
+    References
+    ----------
+    Richardson, A. D. et al. (2006). A multi-site analysis of random error in
+    tower-based measurements of carbon and energy fluxes. Agricultural and Forest
+    Meteorology 136, 1-18 (m).
+    """
+    if "nee" not in frame.columns:
+        return []
+    index = pd.DatetimeIndex(frame.index)
+    nee = pd.to_numeric(frame["nee"], errors="coerce").to_numpy(dtype=float)
+    best = _copied_run(nee, interval_minutes)
+    if best is None:
+        return []
+    shift, records = best
+    first_record, last_record = int(records[0]), int(records[-1])
+    drivers = [n for n in _REPEATED_VARIABLES if n != "nee" and n in frame.columns]
+    copied_drivers = [n for n in drivers if np.array_equal(
+        *(pd.to_numeric(frame[n], errors="coerce").to_numpy(dtype=float)[r]
+          for r in (records, records - shift)), equal_nan=True)]
+    others = (f", and so do {', '.join(copied_drivers)} (rows pasted twice)" if copied_drivers
+              else ", while the drivers do not (the flux column pasted over other records)")
+    return [Finding("input (repeated NEE)", (
+        f"{records.size} measured NEE values {index[first_record]:%Y-%m-%d %H:%M} .. "
+        f"{index[last_record]:%Y-%m-%d %H:%M} (interval starts) repeat exactly, value for "
+        f"value, the NEE {shift} records ({shift * interval_minutes / 1440.0:.2f} days) "
+        f"earlier (from {index[first_record - shift]:%Y-%m-%d %H:%M}){others}: measured "
+        "fluxes never repeat so, and the copies would enter as measured (against the time "
+        "of day and the weather of their own records); mark them missing in a copy of "
+        "the file"), False)]
+
+
+# Drivers pasted over other records, as NEE above: u* (a 30-minute turbulence statistic
+# with a sampling error of ten percent or more from record to record, Lenschow et al.
+# 1994 (m)) and Rg (by day clouds and the sun's path, which moves with the declination
+# from one day to the next, change its last digits; the night's zeros repeat at growing
+# lags, so never make a run) decide which records are filtered, filled and fitted.
+_REPEATED_DRIVERS = ("ustar", "rg")
+
+
+def _repeated_drivers(frame: pd.DataFrame, interval_minutes: float, sources=None) -> list:
+    """Runs of u* or Rg equal, value for value, to the same column's values a fixed
+    number of records earlier (the column pasted over other records).
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The record on its interval stamps, with any of the columns of
+        :data:`_REPEATED_DRIVERS` (u* [m s-1], Rg [W m-2]; NaN = missing).
+    interval_minutes : float
+        Record interval [min].
+    sources : dict, optional
+        Canonical name -> file column, to name the column in the message.
+
+    Returns
+    -------
+    list of Finding
+        One warning per column (stage ``input (repeated <name>)``) with its longest run
+        (:func:`_copied_run`); empty where none is.
+
+    Notes
+    -----
+    On the example site u* of the first half-year pasted over the second one record
+    off the whole days moved annual NEE by -31.7, nighttime GPP by -57.8 and Reco by
+    -89.5 g C m-2, named only as a seasonal u* threshold; Rg so pasted whole days off
+    moved nighttime GPP by -419.8 and daytime GPP by -400.3 g C m-2, named only as Rg
+    above the potential radiation (round mistakes25). Records that repeat in every
+    variable are named by :func:`_repeated_records`, and NEE by :func:`_repeated_nee`.
+
+    References
+    ----------
+    Lenschow, D. H., Mann, J. and Kristensen, L. (1994). How long is long enough when
+    measuring fluxes and other turbulence statistics? Journal of Atmospheric and
+    Oceanic Technology 11, 661-673 (m).
+    """
+    index = pd.DatetimeIndex(frame.index)
+    findings = []
+    for name in _REPEATED_DRIVERS:
+        if name not in frame.columns:
+            continue
+        values = pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=float)
+        best = _copied_run(values, interval_minutes)
+        if best is None:
+            continue
+        shift, records = best
+        first_record, last_record = int(records[0]), int(records[-1])
+        column = (sources or {}).get(name, name)
+        findings.append(Finding(f"input (repeated {name})", (
+            f"{records.size} values of {name} (column {column!r}) "
+            f"{index[first_record]:%Y-%m-%d %H:%M} .. {index[last_record]:%Y-%m-%d %H:%M} "
+            f"(interval starts) repeat exactly, value for value, those {shift} records "
+            f"({shift * interval_minutes / 1440.0:.2f} days) earlier (from "
+            f"{index[first_record - shift]:%Y-%m-%d %H:%M}), while NEE does not: a "
+            "measured column never repeats so over half a day of records, so the column "
+            "looks pasted over other records, and the copies would filter, fill and fit "
+            "NEE against another time's values; mark them missing in a copy of the file"),
+            False))
+    return findings
 
 
 def _long_gaps(index: pd.DatetimeIndex, nee: np.ndarray, interval_minutes: float) -> list:
@@ -1055,7 +1267,9 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
                      if f"{finding.stage[:-1]} flag)" not in named]
         findings += _written_twice(frame, potential, interval_minutes, sources)
         repeated = _repeated_records(frame, interval_minutes)
-        findings += repeated or _repeated_nee(frame, interval_minutes)
+        repeated = (repeated or _repeated_nee(frame, interval_minutes)
+                    or _repeated_nee_any_lag(frame, interval_minutes))
+        findings += repeated or _repeated_drivers(frame, interval_minutes, sources)
         findings += _column_faults(screened, potential, interval_minutes, sources,
                                    is_night)
         findings += _gapless(frame, interval_minutes, sources)

@@ -23,6 +23,7 @@ from fluxpart.column_faults import (
     delayed_tair,
     dew_point_as_tair,
     flag_as_measurement,
+    flat_air_temperature,
     gapless_nee,
     interpolated_nee,
     months_rising_with_light,
@@ -1083,3 +1084,32 @@ def test_a_shaded_rg_is_a_preflight_warning():
     findings = [f for f in _column_faults(screened, potential, 30, {"rg": "Rs_down"})
                 if f.stage == "input (rg shaded)"]
     assert len(findings) == 1 and not findings[0].fatal and "'Rs_down'" in findings[0].message
+
+
+def test_an_air_temperature_without_a_diurnal_course_is_named():
+    # known-truth recovery (round mistakes25) on the analytic air and soil above and the
+    # invented clouds: on clear days the air near the ground warms by day and cools by
+    # night by several K (Oke 1987, Boundary Layer Climates, ch. 2 (m); a diurnal range
+    # near 10 K over land, Easterling et al. 1997 (m)). A 24-h running mean of the air as
+    # tair moved the example's nighttime GPP by -244.8 g C m-2, named only as a swap in July
+    air, _ = temperatures(0.05)
+    _, rg, potential = light_record()
+    stamps = pd.date_range("2021-03-01", periods=air.size, freq=f"{STEP}min")
+    assert flat_air_temperature(air, rg, potential, stamps, STEP) is None
+    weak, _ = temperatures(0.05, air_amplitude=1.0)                   # spans about 2 K
+    assert flat_air_temperature(weak, rg, potential, stamps, STEP) is None
+    _, soil_5cm = temperatures(0.05)                                  # spans about 6 K
+    assert flat_air_temperature(soil_5cm, rg, potential, stamps, STEP) is None
+    running = pd.Series(air).rolling(PER_DAY, center=True, min_periods=1).mean().to_numpy()
+    daily = pd.Series(air, index=stamps).resample("D").mean()
+    spread = (daily.reindex(stamps).interpolate(limit_area="inside").to_numpy())
+    _, soil_50cm = temperatures(0.5)                                  # damped to 2 %
+    for flat in (running, spread, soil_50cm):
+        text = flat_air_temperature(flat, rg, potential, stamps, STEP, {"tair": "t_air"})
+        assert text is not None and "'t_air'" in text and "spans only 0." in text
+    frame = pd.DataFrame({"tair": running, "rg": rg}, index=stamps)
+    assert [f.stage for f in _column_faults(frame, potential, STEP)] == ["input (tair flat)"]
+    # without ten clear days it cannot tell
+    assert flat_air_temperature(running, rg * 0.4, potential, stamps, STEP) is None
+    assert flat_air_temperature(running[:9 * PER_DAY], rg[:9 * PER_DAY],
+                                potential[:9 * PER_DAY], stamps[:9 * PER_DAY], STEP) is None
