@@ -581,6 +581,13 @@ class Config:
                 raise ConfigError(f"[processing] {key} = {setting_text(processing[key])}: "
                                   f"{key} belongs under [{owner}], not [processing]: move it "
                                   "there")
+        if processing.get("ustar_method") == "fixed" and "ustar_threshold" not in processing:
+            # the default is the fall-back of years without a detected threshold, typical
+            # of towers in general: a fixed threshold is the site's own value
+            raise ConfigError('[processing] ustar_method = "fixed" needs ustar_threshold, the '
+                              "site's own u* threshold [m s-1]; without it the run would take "
+                              f"{cls.ustar_threshold} m s-1, a value typical of towers in "
+                              "general, not this site's")
         return cls.from_mapping(processing)
 
     def to_dict(self) -> dict:

@@ -19,6 +19,7 @@ def make_bundle(folder: Path, records: int = SHORT_RECORDS, extra: str = "",
         (folder / "tower.csv").write_text("".join(lines[:records + 1]))
     text = (EXAMPLES / "quillmoor_grassland.toml").read_text()
     text = text.replace('path = "quillmoor_grassland.csv"', 'path = "tower.csv"')
-    text += f'ustar_method = "fixed"\nrandom_error_draws = {draws}\n' + extra
+    text += (f'ustar_method = "fixed"\nustar_threshold = 0.2\nrandom_error_draws = {draws}\n'
+             + extra)
     (folder / name).write_text(text)
     return folder / name

@@ -62,6 +62,20 @@ def test_from_toml_without_processing_gives_defaults(tmp_path):
     assert Config.from_toml(path) == Config()
 
 
+def test_fixed_ustar_method_without_its_threshold_is_refused(tmp_path):
+    """A fixed u* threshold is the site's own value (review28: the default 0.2 m s-1, the
+    fall-back of years without a detected threshold, was taken without a word); given,
+    it is taken."""
+    path = tmp_path / "site.toml"
+    path.write_text('[processing]\nustar_method = "fixed"\n', encoding="utf-8")
+    with pytest.raises(ConfigError, match=r'ustar_method = "fixed" needs ustar_threshold.*'
+                                          r"0\.2 m s-1"):
+        Config.from_toml(path)
+    path.write_text('[processing]\nustar_method = "fixed"\nustar_threshold = 0.2\n',
+                    encoding="utf-8")
+    assert Config.from_toml(path).ustar_threshold == 0.2
+
+
 def test_unknown_key_suggests_nearest(tmp_path):
     """A misspelt setting names itself and suggests the nearest valid one."""
     path = tmp_path / "site.toml"
