@@ -34,9 +34,10 @@ import pandas as pd
 
 from .config import setting_text
 
-__all__ = ["column_place", "column_utc_offset", "half_interval_message",
+__all__ = ["ZONE_ABBREVIATIONS", "column_place", "column_utc_offset", "half_interval_message",
            "date_only_repeats_hint", "name_conflict_message", "paired_stamps_message",
-           "parse_like", "repeated_stamp_hint", "stated_offset", "stated_place", "text_conflict_message"]
+           "parse_like", "repeated_stamp_hint", "stated_offset", "stated_place", "text_conflict_message",
+           "zone_offset"]
 
 #: Words of a time column's name that say where its stamps sit in the interval (English,
 #: with the German words loggers of German-speaking networks write; common practice).
@@ -118,6 +119,70 @@ def column_utc_offset(name: str) -> float | None:
     return -offset if sign == "-" else float(offset)
 
 
+#: Zone abbreviations that name one fixed offset [h] each, as the time-zone database
+#: defines them (IANA tz database, files "europe", "northamerica", "asia",
+#: "australasia", "africa" (m)), with the German names of the European ones (MEZ =
+#: CET, OEZ = EET, WEZ = WET and their summer times, Einheiten- und Zeitgesetz § 4 (m)).
+#: Left out: abbreviations of two zones (CST: China or US Central; IST: India, Ireland
+#: or Israel; BST: British Summer or Bangladesh; AST: Atlantic or Arabia) and MET, also
+#: the short form of "meteorological" in column names and titles.
+ZONE_ABBREVIATIONS = {
+    "CET": 1.0, "MEZ": 1.0, "CEST": 2.0, "MESZ": 2.0, "MEST": 2.0,
+    "EET": 2.0, "OEZ": 2.0, "EEST": 3.0, "OESZ": 3.0,
+    "WET": 0.0, "WEZ": 0.0, "WEST": 1.0, "WESZ": 1.0, "MSK": 3.0,
+    "EST": -5.0, "EDT": -4.0, "CDT": -5.0, "MST": -7.0, "MDT": -6.0, "PST": -8.0,
+    "PDT": -7.0, "AKST": -9.0, "AKDT": -8.0, "HST": -10.0,
+    "JST": 9.0, "KST": 9.0, "HKT": 8.0, "SGT": 8.0, "WIB": 7.0,
+    "AEST": 10.0, "AEDT": 11.0, "ACST": 9.5, "ACDT": 10.5, "AWST": 8.0,
+    "NZST": 12.0, "NZDT": 13.0, "SAST": 2.0,
+}
+_ABBREVIATION = re.compile(r"(?<![A-Za-z])([A-Z]{3,4})(?![A-Za-z])")
+_AREA_CITY = re.compile(r"(?<![\w/])((?:Africa|America|Antarctica|Asia|Atlantic|Australia|"
+                        r"Europe|Indian|Pacific|Etc)/[A-Za-z_+\-0-9]+(?:/[A-Za-z_\-]+)?)")
+
+
+def zone_offset(text: str) -> float | None:
+    """The standard UTC offset a zone abbreviation or zone name in a text states [hours].
+
+    Parameters
+    ----------
+    text : str
+        Text as written (case kept), e.g. ``"EET"``, ``"Zeit (MEZ)"``,
+        ``"timezone: Europe/London"``.
+
+    Returns
+    -------
+    float or None
+        The offset [h]: a listed abbreviation's fixed offset (``ZONE_ABBREVIATIONS``;
+        upper case only, so the words "est" or "wet" are not read), or a time-zone
+        database name's standard time (the smaller of its January and July offsets:
+        daylight saving puts clocks ahead, also in the southern hemisphere); None
+        where the text names none, or several with different offsets.
+
+    References
+    ----------
+    IANA time zone database (zone names "Area/City", abbreviations and their offsets;
+    read through the standard library's ``zoneinfo``) (m). Daylight saving time
+    advances clocks by (usually) one hour (m).
+    """
+    from datetime import timezone as _timezone
+    from zoneinfo import ZoneInfo
+
+    found = set()
+    for match in _AREA_CITY.finditer(text):
+        try:
+            zone = ZoneInfo(match.group(1))
+        except (ValueError, OSError, KeyError):         # not a zone of the database
+            continue
+        offsets = [datetime(2021, month, 15, 12, tzinfo=_timezone.utc).astimezone(zone)
+                   .utcoffset().total_seconds() / 3600.0 for month in (1, 7)]
+        found.add(min(offsets))
+    if not found:
+        found = {ZONE_ABBREVIATIONS[m.group(1)] for m in _ABBREVIATION.finditer(text)
+                 if m.group(1) in ZONE_ABBREVIATIONS}
+    return found.pop() if len(found) == 1 else None
+
+
 def _hours(offset: float) -> str:
     return f"UTC{offset:+g}" if offset else "UTC"
 
@@ -130,6 +195,9 @@ _ZONE_KEY = re.compile(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt
                        r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*([^,;]*)")
 _IN_UTC = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?)\b[^.;]{0,24}?"
                      r"\bin\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+#: "Logger clock: EST", "clock = UTC+1" (a colon or equals sign: "clock synchronised to
+#: UTC" names the clock only in passing, not the stamps')
+_CLOCK_KEY = re.compile(r"\bclock\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
 _BARE_OFFSET = re.compile(r"^([+-])(\d{1,2})(?::?(\d{2}))?$")
 
 
@@ -174,8 +242,9 @@ def stated_offset(text: str) -> float | None:
     ----------
     ISO 8601-1:2019 (offsets from UTC as ``±hh``, ``±hhmm``, ``±hh:mm``) (m).
     """
-    lowered = text.lower().replace("\u2212", "-").strip().strip('"').strip()
-    key = _ZONE_KEY.search(lowered)
+    original = text.replace("\u2212", "-").strip().strip('"').strip()
+    lowered = original.lower()
+    key = _ZONE_KEY.search(lowered) or _CLOCK_KEY.search(lowered)
     if key:
         value = key.group(1).strip().strip('"\'').strip()
         bare = _BARE_OFFSET.match(value.replace(" ", ""))
@@ -186,11 +255,20 @@ def stated_offset(text: str) -> float | None:
         hours = re.fullmatch(r"[+-]?\d{1,2}(?:\.\d+)?", value.replace(" ", ""))
         if hours and abs(float(hours.group(0))) <= 14:      # "UTC offset: 1" (hours)
             return float(hours.group(0))
-        return column_utc_offset(value)
+        offset = column_utc_offset(value)
+        if offset is None and len(lowered) == len(original):   # "Time zone: EET"
+            offset = zone_offset(original[key.start(1):key.end(1)])
+        return offset
     inside = _IN_UTC.search(lowered)
     if inside:
         return column_utc_offset(inside.group(1) + (inside.group(2) or "").replace(" ", ""))
-    return column_utc_offset(lowered) if len(lowered) <= 12 else None
+    if len(lowered) > 12:
+        # a line of a zone name alone ("Europe/Helsinki"), else nothing stated
+        return zone_offset(original) if _AREA_CITY.fullmatch(original) else None
+    offset = column_utc_offset(lowered)
+    if offset is None and re.fullmatch(r"\(?[A-Z]{3,4}\)?", original):    # a line "EET"
+        offset = zone_offset(original)
+    return offset
 
 
 def text_conflict_message(statements: list, time_marks: str, time_format: str,
@@ -231,6 +309,8 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
         offset = stated_offset(text)
         if offset is None and where.startswith("the cell under"):
             offset = column_utc_offset(text)      # "yyyy-mm-dd hh:mm UTC" under the stamps
+            if offset is None:                    # "yyyy-mm-dd hh:mm MEZ", "EET"
+                offset = zone_offset(text)
         if offset is not None and not np.isclose(offset, utc_offset):
             return (f"{where} ({text.strip()[:80]!r}) states stamps in {_hours(offset)}, "
                     f"but without [input] time_zone {_read_as(utc_offset, offset)} if the "
@@ -296,6 +376,8 @@ def name_conflict_message(time_columns: tuple, time_marks: str, time_format: str
         return None
     for column in time_columns:
         offset = column_utc_offset(column)
+        if offset is None:                        # "Zeit (MEZ)", "time_EET"
+            offset = zone_offset(column)
         if offset is not None and not np.isclose(offset, utc_offset):
             return (f"[input] time_column {column!r} is named for stamps in "
                     f"{_hours(offset)}, but without [input] time_zone "

@@ -1,0 +1,160 @@
+"""Layouts of the layouts24 round: a clock stated by a zone abbreviation or a zone name
+(above the header, under the time column's name or in it), German zone labels on the
+stamps, and compact stamps that drop a leading zero.
+
+Outside facts, each named beside its check: the offsets of zone abbreviations and zone
+names (IANA time zone database, read through the standard library's ``zoneinfo``;
+EET = UTC+2, EST = UTC-5 (m)); MEZ/MESZ are the German names of CET/CEST (German time
+law, Einheiten- und Zeitgesetz § 4 (m)); ISO 8601 basic format writes every field with
+its leading zeros (m). Everything else is invented known truth: the records as written.
+"""
+
+from datetime import datetime, timedelta, timezone
+from zoneinfo import ZoneInfo
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.errors import FluxpartError, TimestampError
+from fluxpart.io import read_table
+from fluxpart.site import Site
+from fluxpart.stamp_places import stated_offset, zone_offset
+
+SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
+MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+
+
+def _records(days=20):
+    """Invented half-hourly records; interval ends in local standard time (UTC+1)."""
+    ends = pd.date_range("2021-06-01 00:30", periods=48 * days, freq="30min")
+    rng = np.random.default_rng(24)
+    hour = (ends.hour + ends.minute / 60).to_numpy()
+    sun = np.clip(np.sin((hour - 6) / 12 * np.pi), 0, None)
+    values = pd.DataFrame({
+        "fc": np.round(3 - 12 * sun + rng.normal(0, 1, len(ends)), 3),
+        "us": np.round(0.3 + 0.1 * rng.random(len(ends)), 3),
+        "sw": np.round(800 * sun, 1),
+        "ta": np.round(15 + 8 * sun, 2),
+        "vpd": np.round(5 + 10 * sun, 2),
+    })
+    return ends, values
+
+
+def _write(path, stamps, values, top=(), units=None, name="stamp"):
+    lines = list(top) + [",".join([name, *values.columns])]
+    if units is not None:
+        lines.append(units)
+    cells = values.astype(str).to_numpy()
+    lines += [",".join([stamp, *row]) for stamp, row in zip(stamps, cells)]
+    path.write_text("\n".join(lines) + "\n")
+    return path
+
+
+def _read(path, time_format="%Y-%m-%d %H:%M", **kwargs):
+    kwargs.setdefault("time_column", "stamp")
+    return read_table(path, columns=MAPPING, time_format=time_format,
+                      time_marks="end", units={"vpd": "hPa"}, site=SITE, **kwargs)
+
+
+@pytest.mark.parametrize(("text", "expected"), [
+    ("Time zone: EET", 2.0),                  # EET = UTC+2 (IANA tz "europe" file (m))
+    ("Zeitzone: MEZ", 1.0),                   # MEZ = CET = UTC+1 (German time law (m))
+    ("Site clock: EST", -5.0),                # EST = UTC-5 (IANA tz "northamerica" (m))
+    ("# timezone: Europe/London", 0.0),       # GMT in winter (zoneinfo)
+    ("timezone = America/Chicago", -6.0),     # CST in winter (zoneinfo)
+    ("Time zone: Australia/Adelaide", 9.5),   # ACST, standard time in July (zoneinfo)
+    ("Europe/Helsinki", 2.0),                 # a line of the zone name alone (zoneinfo)
+    ("EET", 2.0),
+    ("Logger clock synchronised by GPS", None),   # no clock stated
+    ("clock synchronised to UTC", None),           # named only in passing, as before
+    ("UTM zone: 32", None),                        # not a time zone
+    ("MET station QL-7", None),                    # meteorological, not the MET label
+    ("Time zone: local", None),
+])
+def test_stated_offset_reads_zone_abbreviations_and_names(text, expected):
+    assert stated_offset(text) == expected
+
+
+def test_zone_offset_is_the_standard_offset_of_a_zone_name():
+    """The offset the standard library's zoneinfo gives in the month without daylight
+    saving (January north, July south): the outside source of each expected value."""
+    for name, month in (("Europe/Dublin", 1), ("America/St_Johns", 1),
+                        ("Australia/Sydney", 7), ("Asia/Kathmandu", 1)):
+        moment = datetime(2021, month, 15, 12, tzinfo=timezone.utc)
+        expected = moment.astimezone(ZoneInfo(name)).utcoffset() / timedelta(hours=1)
+        assert zone_offset(name) == expected
+    assert zone_offset("Zeit (MEZ)") == 1.0
+    assert zone_offset("TIMESTAMP") is None and zone_offset("time_met") is None
+    assert zone_offset("Time zone: est") is None          # lower case: a word, not a label
+
+
+def test_zone_abbreviation_above_the_header_is_refused_naming_both(tmp_path):
+    """Known truth: a logger kept on EET (UTC+2) at a UTC+1 site says so above its header.
+    Read before as local standard time without a word (every record an hour late)."""
+    ends, values = _records()
+    stamps = (ends + pd.Timedelta(hours=1)).strftime("%Y-%m-%d %H:%M")
+    path = _write(tmp_path / "eet.csv", stamps, values, top=["Logger QL-7", "Time zone: EET"])
+    with pytest.raises(TimestampError) as caught:
+        _read(path, rows_before_header=2)
+    message = str(caught.value)
+    assert "'Time zone: EET'" in message and "UTC+2" in message and "UTC+1" in message
+    assert "[site] utc_offset = 2" in message and "1 hour(s) apart" in message
+    # the site's own zone, or time_zone set, is read as before
+    stamps = ends.strftime("%Y-%m-%d %H:%M")
+    path = _write(tmp_path / "cet.csv", stamps, values, top=["Logger QL-7", "Time zone: CET"])
+    frame, _ = _read(path, rows_before_header=2)
+    assert frame.index[0] == ends[0] - pd.Timedelta(minutes=30)
+
+
+@pytest.mark.parametrize(("where", "kwargs"), [
+    ("units", {"rows_after_header": 1}),
+    ("name", {"time_column": "time_EET"}),
+    ("line", {"rows_before_header": 1}),
+])
+def test_zone_in_units_cell_column_name_or_line_is_refused(tmp_path, where, kwargs):
+    """Known truth: EET stamps (UTC+2) at a UTC+1 site, the zone written under the time
+    column's name, in it, or as a zone name on a line of its own."""
+    ends, values = _records()
+    stamps = (ends + pd.Timedelta(hours=1)).strftime("%Y-%m-%d %H:%M")
+    units = ",".join(["EET"] + [""] * values.shape[1]) if where == "units" else None
+    top = ["Europe/Athens"] if where == "line" else ()
+    name = "time_EET" if where == "name" else "stamp"
+    path = _write(tmp_path / "f.csv", stamps, values, top=top, units=units, name=name)
+    with pytest.raises(FluxpartError, match=r"UTC\+2.*UTC\+1"):
+        _read(path, **kwargs)
+
+
+def test_german_zone_labels_read_as_the_english_ones(tmp_path):
+    """Known truth: civil time of Berlin labelled MEZ/MESZ (the German names of CET/CEST)
+    reads as the same stamps labelled CET/CEST; refused before with the hint to add %z."""
+    ends, values = _records(days=30)
+    ends = ends + pd.Timedelta(days=85)                      # across the March change
+    civil = ends.tz_localize("Etc/GMT-1").tz_convert("Europe/Berlin")
+    german = [t.strftime("%Y-%m-%d %H:%M ") + ("MESZ" if t.dst() else "MEZ") for t in civil]
+    english = [t.strftime("%Y-%m-%d %H:%M ") + ("CEST" if t.dst() else "CET") for t in civil]
+    a = _write(tmp_path / "de.csv", german, values)
+    b = _write(tmp_path / "en.csv", english, values)
+    frame_de, _ = _read(a, time_format="%Y-%m-%d %H:%M %Z")
+    frame_en, _ = _read(b, time_format="%Y-%m-%d %H:%M %Z")
+    pd.testing.assert_frame_equal(frame_de, frame_en)
+    assert frame_de.index[0] == ends[0] - pd.Timedelta(minutes=30)    # standard time
+
+
+@pytest.mark.parametrize("unpad", ["date", "hour"])
+def test_compact_stamps_without_leading_zeros_are_refused(tmp_path, unpad):
+    """Known truth: a compact stamp whose month and day (or hour) lack their leading
+    zero; '2021111' is 1 November or 11 January (ISO 8601 basic format pads every field
+    (m)). Refused before with "stamp occurs 2 times ... keep one of them" (a wrong fix) or
+    a bare parse failure; now named as unpadded fields."""
+    ends, values = _records(days=15)
+    if unpad == "date":
+        stamps = [f"{t.year}{t.month}{t.day}{t.hour:02d}{t.minute:02d}" for t in ends]
+    else:
+        stamps = [f"{t:%Y%m%d}{t.hour}{t.minute:02d}" for t in ends]
+    path = _write(tmp_path / "c.csv", stamps, values)
+    with pytest.raises(TimestampError, match="without its leading zero"):
+        _read(path, time_format="%Y%m%d%H%M")
+    padded = _write(tmp_path / "p.csv", ends.strftime("%Y%m%d%H%M"), values)
+    frame, _ = _read(padded, time_format="%Y%m%d%H%M")
+    assert len(frame) == len(ends)
