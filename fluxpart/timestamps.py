@@ -925,7 +925,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             # PDT), several of which are ambiguous
             hint = (f"; the zone abbreviation {text.iloc[first].split()[-1]!r} is not read "
                     "(only UTC, GMT, the European labels CET, MET, EET, WET and their summer "
-                    "times CEST, MEST, EEST, WEST, and time-zone database names such as "
+                    "times CEST, MEST, EEST, WEST, their German names MEZ, MESZ, OEZ, "
+                    "OESZ, WEZ, WESZ, and time-zone database names such as "
                     "EST): write the "
                     "stamps with a numeric offset (+02:00, %z), or without the abbreviation "
                     "and with [input] time_zone = \"Area/City\"")

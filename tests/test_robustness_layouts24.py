@@ -46,7 +46,7 @@ def _write(path, stamps, values, top=(), units=None, name="stamp"):
     if units is not None:
         lines.append(units)
     cells = values.astype(str).to_numpy()
-    lines += [",".join([stamp, *row]) for stamp, row in zip(stamps, cells)]
+    lines += [",".join([stamp, *row]) for stamp, row in zip(stamps, cells, strict=True)]
     path.write_text("\n".join(lines) + "\n")
     return path
 
