@@ -36,8 +36,8 @@ from .config import setting_text
 
 __all__ = ["ZONE_ABBREVIATIONS", "column_place", "column_utc_offset", "half_interval_message",
            "date_only_repeats_hint", "name_conflict_message", "paired_stamps_message",
-           "parse_like", "repeated_stamp_hint", "stated_offset", "stated_place", "text_conflict_message",
-           "zone_offset"]
+           "parse_like", "repeated_stamp_hint", "spelled_zone_offset", "stated_offset", "stated_place",
+           "text_conflict_message", "zone_offset"]
 
 #: Words of a time column's name that say where its stamps sit in the interval (English,
 #: with the German words loggers of German-speaking networks write; common practice).
@@ -183,6 +183,31 @@ def zone_offset(text: str) -> float | None:
     return found.pop() if len(found) == 1 else None
 
 
+def spelled_zone_offset(text: str) -> float | None:
+    """The standard UTC offset of a zone written out in words in a text [hours], or None.
+
+    Parameters
+    ----------
+    text : str
+        Text, e.g. ``"All times in Coordinated Universal Time"`` (0),
+        ``"TimeZone=W. Europe Standard Time"`` (1), ``"Eastern Standard Time"`` (-5).
+
+    Returns
+    -------
+    float or None
+        The offset [h] of the zone named (``_SPELLED_ZONES``); None where none is named,
+        or several with different offsets.
+
+    References
+    ----------
+    IANA time zone database (standard times of the zones) and Unicode CLDR's mapping of
+    Windows zone identifiers (m).
+    """
+    offsets = dict(_SPELLED_ZONES)
+    found = {offsets[m.group(1)] for m in _SPELLED.finditer(text.lower())}
+    return found.pop() if len(found) == 1 else None
+
+
 def _hours(offset: float) -> str:
     return f"UTC{offset:+g}" if offset else "UTC"
 
@@ -195,6 +220,44 @@ _ZONE_KEY = re.compile(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt
                        r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*([^,;]*)")
 _IN_UTC = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?)\b[^.;]{0,24}?"
                      r"\bin\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+#: "Time reference: UTC", "Timebase: UTC", "Time standard = GMT" (a clock or zone follows;
+#: bare numbers are not read, since "time base: 10" may be a sampling rate)
+_REFERENCE_KEY = re.compile(r"(?:\btime[\s_-]*(?:reference|base|standard)|\btimebase"
+                            r"|\bzeitbasis|\bzeitreferenz)\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
+#: Zones written out in words, as logger software, Windows (its zone identifiers, "W.
+#: Europe Standard Time" for Berlin) and data documentation write them [h]; the longer
+#: phrase first, so "Australian Eastern Standard Time" is not read as US Eastern.
+#: Offsets: the zones' standard times in the IANA time zone database and the Windows
+#: zone identifiers of the Unicode CLDR mapping (m).
+_SPELLED_ZONES = (
+    ("australian eastern standard time", 10.0), ("aus eastern standard time", 10.0),
+    ("australian central standard time", 9.5), ("australian western standard time", 8.0),
+    ("us eastern standard time", -5.0), ("coordinated universal time", 0.0),
+    ("universal time coordinated", 0.0), ("greenwich mean time", 0.0),
+    ("western european summer time", 1.0), ("western european time", 0.0),
+    ("western european standard time", 0.0), ("central european summer time", 2.0),
+    ("central european time", 1.0), ("central european standard time", 1.0),
+    ("central europe standard time", 1.0), ("middle european time", 1.0),
+    ("w. europe standard time", 1.0), ("romance standard time", 1.0),
+    ("eastern european summer time", 3.0), ("eastern european time", 2.0),
+    ("eastern european standard time", 2.0), ("e. europe standard time", 2.0),
+    ("fle standard time", 2.0), ("gtb standard time", 2.0),
+    ("mitteleuropäische sommerzeit", 2.0), ("mitteleuropäische zeit", 1.0),
+    ("osteuropäische zeit", 2.0), ("westeuropäische zeit", 0.0),
+    ("moscow standard time", 3.0), ("russian standard time", 3.0),
+    ("eastern standard time", -5.0), ("eastern daylight time", -4.0),
+    ("central standard time", -6.0), ("central daylight time", -5.0),
+    ("mountain standard time", -7.0), ("mountain daylight time", -6.0),
+    ("pacific standard time", -8.0), ("pacific daylight time", -7.0),
+    ("alaskan standard time", -9.0), ("alaska standard time", -9.0),
+    ("hawaiian standard time", -10.0), ("hawaii standard time", -10.0),
+    ("japan standard time", 9.0), ("tokyo standard time", 9.0),
+    ("korea standard time", 9.0), ("china standard time", 8.0),
+    ("india standard time", 5.5), ("indian standard time", 5.5),
+    ("new zealand standard time", 12.0), ("south africa standard time", 2.0),
+)
+_SPELLED = re.compile(r"(?<![a-z])(" + "|".join(re.escape(p) for p, _ in _SPELLED_ZONES)
+                      + r")(?![a-z])")
 #: "Logger clock: EST", "clock = UTC+1" (a colon or equals sign: "clock synchronised to
 #: UTC" names the clock only in passing, not the stamps')
 _CLOCK_KEY = re.compile(r"\bclock\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
@@ -244,7 +307,15 @@ def stated_offset(text: str) -> float | None:
     """
     original = text.replace("\u2212", "-").strip().strip('"').strip()
     lowered = original.lower()
-    key = _ZONE_KEY.search(lowered) or _CLOCK_KEY.search(lowered)
+    key = _CLOCK_KEY.search(lowered) or _REFERENCE_KEY.search(lowered)
+    if key and not _ZONE_KEY.search(lowered):
+        # "Logger clock: EST", "Time reference: UTC": a clock or zone, not bare hours
+        value = key.group(1).strip().strip('"\'').strip()
+        offset = column_utc_offset(value)
+        if offset is None and len(lowered) == len(original):
+            offset = zone_offset(original[key.start(1):key.end(1)])
+        return offset if offset is not None else spelled_zone_offset(value)
+    key = _ZONE_KEY.search(lowered)
     if key:
         value = key.group(1).strip().strip('"\'').strip()
         bare = _BARE_OFFSET.match(value.replace(" ", ""))
@@ -258,10 +329,13 @@ def stated_offset(text: str) -> float | None:
         offset = column_utc_offset(value)
         if offset is None and len(lowered) == len(original):   # "Time zone: EET"
             offset = zone_offset(original[key.start(1):key.end(1)])
-        return offset
+        return offset if offset is not None else spelled_zone_offset(value)
     inside = _IN_UTC.search(lowered)
     if inside:
         return column_utc_offset(inside.group(1) + (inside.group(2) or "").replace(" ", ""))
+    spelled = spelled_zone_offset(lowered)        # "All times in Coordinated Universal Time"
+    if spelled is not None:
+        return spelled
     if len(lowered) > 12:
         # a line of a zone name alone ("Europe/Helsinki"), else nothing stated
         return zone_offset(original) if _AREA_CITY.fullmatch(original) else None

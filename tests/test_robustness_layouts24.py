@@ -71,6 +71,18 @@ def _read(path, time_format="%Y-%m-%d %H:%M", **kwargs):
     ("UTM zone: 32", None),                        # not a time zone
     ("MET station QL-7", None),                    # meteorological, not the MET label
     ("Time zone: local", None),
+    # zones written out in words (IANA standard times; Windows zone identifiers as the
+    # Unicode CLDR maps them: "W. Europe Standard Time" is Berlin's (m))
+    ("All times in Coordinated Universal Time", 0.0),
+    ("Time zone: Eastern European Time", 2.0),
+    ("TimeZone=W. Europe Standard Time", 1.0),
+    ("Time zone: Eastern Standard Time", -5.0),
+    ("Time zone: Australian Eastern Standard Time", 10.0),   # not US Eastern
+    ("Zeitzone: Mitteleuropäische Zeit", 1.0),
+    ("Times: local standard time", None),
+    # other keys of a clock, read since layouts24
+    ("Time reference: UTC", 0.0), ("Timebase: UTC", 0.0), ("Time standard = GMT", 0.0),
+    ("Time base: 10", None),                      # a sampling rate, not an offset
 ])
 def test_stated_offset_reads_zone_abbreviations_and_names(text, expected):
     assert stated_offset(text) == expected
@@ -104,6 +116,20 @@ def test_zone_abbreviation_above_the_header_is_refused_naming_both(tmp_path):
     stamps = ends.strftime("%Y-%m-%d %H:%M")
     path = _write(tmp_path / "cet.csv", stamps, values, top=["Logger QL-7", "Time zone: CET"])
     frame, _ = _read(path, rows_before_header=2)
+    assert frame.index[0] == ends[0] - pd.Timedelta(minutes=30)
+
+
+@pytest.mark.parametrize("line", ["All times in Coordinated Universal Time",
+                                  "Time reference: UTC"])
+def test_spelled_zone_or_reference_line_is_refused(tmp_path, line):
+    """Known truth: a logger on UTC at a UTC+1 site whose title block says so in words.
+    Read before as local standard time without a word (every record an hour early)."""
+    ends, values = _records()
+    stamps = (ends - pd.Timedelta(hours=1)).strftime("%Y-%m-%d %H:%M")
+    path = _write(tmp_path / "utc.csv", stamps, values, top=["QL-7 flux table", line])
+    with pytest.raises(TimestampError, match='states stamps in UTC,.*set time_zone = "UTC"'):
+        _read(path, rows_before_header=2)
+    frame, _ = _read(path, rows_before_header=2, time_zone="UTC")
     assert frame.index[0] == ends[0] - pd.Timedelta(minutes=30)
 
 
