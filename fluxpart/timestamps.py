@@ -814,6 +814,11 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             "hour of a 12-hour clock, which needs %p (AM/PM) beside it; without it 1 PM is "
             "read as 1 AM: add %p where the stamps carry AM/PM, or write the hour as %H "
             "(a 24-hour clock)")
+    if time_format.upper() == "ISO8601":
+        # RFC 3339, section 5.6: the "T" and the "Z" of UTC may be written in lower case
+        # (m); pandas reads only upper case
+        text = (text.str.replace(r"(?<=\d)t(?=\d)", "T", regex=True)
+                .str.replace(r"(?<=\d)z$", "Z", regex=True))
     if time_format.endswith("Z") and not time_format.endswith("%Z") and time_zone is None:
         time_format = time_format[:-1] + "%z"       # "...%SZ": the Z of UTC, not a letter
     with_offset = _carries_offset(text, time_format)

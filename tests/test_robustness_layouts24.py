@@ -184,3 +184,60 @@ def test_compact_stamps_without_leading_zeros_are_refused(tmp_path, unpad):
     padded = _write(tmp_path / "p.csv", ends.strftime("%Y%m%d%H%M"), values)
     frame, _ = _read(padded, time_format="%Y%m%d%H%M")
     assert len(frame) == len(ends)
+
+
+def test_microsoft_nan_and_infinity_cells_read_as_missing(tmp_path):
+    """Known truth: cells written "-1.#IND", "1.#QNAN" and "1.#INF00" (NaN and infinity as
+    the Microsoft C runtime's printf wrote them (m)) hold no value; refused before with
+    "add it to [input] missing". Now read as missing (NaN) and counted (infinity)."""
+    ends, values = _records()
+    values = values.astype(str)
+    values.loc[[10, 20], "ta"] = "-1.#IND"
+    values.loc[[30], "sw"] = "1.#QNAN"
+    values.loc[[40], "vpd"] = "1.#INF00"
+    path = _write(tmp_path / "m.csv", ends.strftime("%Y-%m-%d %H:%M"), values)
+    frame, report = _read(path)
+    assert frame["tair"].isna().sum() == 2 and np.isnan(frame["tair"].iloc[10])
+    assert np.isnan(frame["rg"].iloc[30]) and np.isnan(frame["vpd"].iloc[40])
+    assert report.nonfinite_cells["vpd"] == 1
+    assert frame["tair"].notna().sum() == len(ends) - 2
+
+
+def test_lower_case_t_and_z_in_iso_stamps(tmp_path):
+    """RFC 3339, section 5.6 (m): "T" and "Z" may be lower case. Known truth: UTC stamps
+    written "2021-05-31t23:30:00z" read as the same stamps in upper case."""
+    ends, values = _records()
+    utc = ends - pd.Timedelta(hours=1)
+    lower = _write(tmp_path / "l.csv", utc.strftime("%Y-%m-%dt%H:%M:%Sz"), values)
+    upper = _write(tmp_path / "u.csv", utc.strftime("%Y-%m-%dT%H:%M:%SZ"), values)
+    frame_lower, _ = _read(lower, time_format="ISO8601")
+    frame_upper, _ = _read(upper, time_format="ISO8601")
+    pd.testing.assert_frame_equal(frame_lower, frame_upper)
+    assert frame_lower.index[0] == ends[0] - pd.Timedelta(minutes=30)
+
+
+def test_overlap_differing_only_by_rounding_is_named(tmp_path):
+    """Known truth: the overlap of two files whose second copy was written with two
+    decimals (a number written to d decimals is within half a unit of its d-th decimal,
+    common practice). Refused before as a plain disagreement; still refused (the values
+    cannot say which copy is the logger's), now naming the rounding. A copy that differs
+    by more than rounding keeps the plain message."""
+    ends, values = _records()
+    stamps = ends.strftime("%Y-%m-%d %H:%M")
+    rounded = values.copy()
+    rounded["fc"] = rounded["fc"].round(2)
+    rounded["us"] = rounded["us"].round(2)
+    _write(tmp_path / "a.csv", stamps[:500], values.iloc[:500])
+    _write(tmp_path / "b.csv", stamps[400:], rounded.iloc[400:])
+    paths = [tmp_path / "a.csv", tmp_path / "b.csv"]
+    with pytest.raises(FluxpartError) as caught:
+        _read(paths)
+    message = str(caught.value)
+    assert "rounded to fewer decimals" in message
+    assert message.index("b.csv' is that of") < message.index("a.csv' rounded")
+    other = values.copy()
+    other["fc"] = other["fc"] + 0.5
+    _write(tmp_path / "b.csv", stamps[400:], other.iloc[400:])
+    with pytest.raises(FluxpartError) as caught:
+        _read(paths)
+    assert "rounded" not in str(caught.value)
