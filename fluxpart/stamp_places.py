@@ -216,6 +216,20 @@ _STATED_PLACE = re.compile(
     r"\b(start|beginning|begin|end|middle|centre|center|mid-?point)\s+of\s+(?:the\s+|each\s+)?"
     r"(?:averaging\s+|measurement\s+|sampling\s+|logging\s+|record(?:ing)?\s+)?"
     r"(?:interval|period|window)")
+#: German statements of the place (common practice of German-speaking networks):
+#: "Intervallanfang", "Ende des Mittelungsintervalls"
+_GERMAN_PLACE = re.compile(
+    r"\b(?:mittelungs|mess)?intervall(anfang|beginn|ende|mitte)\b"
+    r"|\b(anfang|beginn|ende|mitte)\s+des\s+(?:mittelungs|mess)?(?:zeit)?"
+    r"(?:intervall|zeitraum)e?s\b")
+#: A place word within a few words after a word for the stamps, in one clause
+#: ("Timestamp at start of each 30-min average", "Time label: interval start")
+_STAMP_PLACE = re.compile(
+    r"\b(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?|zeitstempel)\b[^.;]{0,30}?"
+    r"(?<![a-z])(start|beginning|begin|end|middle|centre|center|midpoint)(?![a-z])")
+#: "interval begin", "period end" in a cell under the time column's name
+_CELL_PLACE = re.compile(r"\b(?:interval|period|averaging|window)\s+"
+                         r"(start|beginning|begin|end|middle|centre|center|midpoint)\b")
 _ZONE_KEY = re.compile(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt[\s_-]*offset)"
                        r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*([^,;]*)")
 _IN_UTC = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?)\b[^.;]{0,24}?"
@@ -264,13 +278,17 @@ _CLOCK_KEY = re.compile(r"\bclock\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
 _BARE_OFFSET = re.compile(r"^([+-])(\d{1,2})(?::?(\d{2}))?$")
 
 
-def stated_place(text: str) -> str | None:
+def stated_place(text: str, cell: bool = False) -> str | None:
     """The place in the interval a line of text states ("end of the averaging period").
 
     Parameters
     ----------
     text : str
         A line above the header, or a cell under the time column's name.
+    cell : bool
+        True for a cell under the time column's name, which speaks of the stamps, so
+        "interval begin" or "period end" there states a place; on a line above the
+        header such words may date the record ("Period start: 2021-01-01").
 
     Returns
     -------
@@ -282,8 +300,18 @@ def stated_place(text: str) -> str | None:
     Common practice: logger and export headers state the place of the stamp in words.
     """
     places = {"beginning": "start", "begin": "start", "centre": "middle",
-              "center": "middle", "midpoint": "middle", "mid-point": "middle"}
-    found = {places.get(m.group(1), m.group(1)) for m in _STATED_PLACE.finditer(text.lower())}
+              "center": "middle", "midpoint": "middle", "mid-point": "middle",
+              "anfang": "start", "beginn": "start", "ende": "end", "mitte": "middle"}
+    lowered = text.lower()
+    # "end-of-period" written with hyphens reads as "end of period"
+    spaced = re.sub(r"(?<=[a-z])-(?=(?:of|the|each|averaging|measurement|sampling|logging|"
+                    r"record|recording|interval|period|window)\b)|(?<=\bof)-", " ", lowered)
+    found = {places.get(m.group(1), m.group(1)) for m in _STATED_PLACE.finditer(spaced)}
+    found |= {places[m.group(1) or m.group(2)] for m in _GERMAN_PLACE.finditer(lowered)}
+    for stamp in _STAMP_PLACE.finditer(lowered):          # "Timestamp at start of ..."
+        found.add(places.get(stamp.group(1), stamp.group(1)))
+    if cell:                                              # a units cell "interval begin"
+        found |= {places.get(m.group(1), m.group(1)) for m in _CELL_PLACE.finditer(spaced)}
     return found.pop() if len(found) == 1 else None
 
 
@@ -369,7 +397,7 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
     Aubinet, Vesala and Papale (2012) (m); ISO 8601-1:2019 (m).
     """
     for where, text in statements:
-        place = stated_place(text)
+        place = stated_place(text, cell=where.startswith("the cell under"))
         if place is not None and place != time_marks:
             return (f"{where} ({text.strip()[:80]!r}) states stamps at the interval's {place}"
                     f", but time_marks = {setting_text(time_marks)} reads them as its "

@@ -19,7 +19,7 @@ import pytest
 from fluxpart.errors import FluxpartError, TimestampError
 from fluxpart.io import read_table
 from fluxpart.site import Site
-from fluxpart.stamp_places import stated_offset, zone_offset
+from fluxpart.stamp_places import stated_offset, stated_place, zone_offset
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
 MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
@@ -241,3 +241,41 @@ def test_overlap_differing_only_by_rounding_is_named(tmp_path):
     with pytest.raises(FluxpartError) as caught:
         _read(paths)
     assert "rounded" not in str(caught.value)
+
+
+@pytest.mark.parametrize(("text", "cell", "expected"), [
+    # how logger headers state the stamp's place in words (common practice)
+    ("Time label: interval start", False, "start"),
+    ("Timestamp at start of each 30-min average", False, "start"),
+    ("timestamps: beginning-of-period", False, "start"),
+    ("timestamps end-of-interval", False, "end"),
+    # German, as networks of German-speaking countries write it (common practice)
+    ("Zeitstempel: Beginn des Mittelungsintervalls", False, "start"),
+    ("Zeitstempel = Intervallanfang", False, "start"),
+    ("Ende des Messintervalls", False, "end"),
+    ("interval begin", True, "start"),
+    ("Intervallanfang", True, "start"),
+    # no statement of the place: a date of the record, a clause about other things
+    ("Period start: 2021-01-01", False, None),
+    ("Timestamp format: yyyy-mm-dd; data end 2021-12-31", False, None),
+    ("TS", True, None),
+    ("start of interval .. end of interval", False, None),
+])
+def test_stated_place_words(text, cell, expected):
+    assert stated_place(text, cell=cell) == expected
+
+
+def test_start_stamps_stated_in_a_title_line_are_refused(tmp_path):
+    """Known truth: interval starts written by a logger whose title block says "Time
+    label: interval start", read with time_marks = "end" (every record 30 minutes
+    early): read before without a word from the reader, now refused naming both."""
+    ends, values = _records()
+    starts = ends - pd.Timedelta(minutes=30)
+    path = _write(tmp_path / "s.csv", starts.strftime("%Y-%m-%d %H:%M"), values,
+                  top=["QL-7 flux table", "Time label: interval start"])
+    with pytest.raises(TimestampError, match='set time_marks = "start"'):
+        _read(path, rows_before_header=2)
+    frame, _ = read_table(path, columns=MAPPING, time_column="stamp",
+                          time_format="%Y-%m-%d %H:%M", time_marks="start",
+                          units={"vpd": "hPa"}, site=SITE, rows_before_header=2)
+    assert frame.index[0] == starts[0]
