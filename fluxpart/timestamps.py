@@ -297,6 +297,9 @@ def _unpadded_compact_message(text: pd.Series, time_format: str) -> tuple | None
     if layout is None or not _ADJACENT_FIELDS.search(time_format) or len(text) == 0:
         return None
     width = layout[2]
+    raw_lengths = text.str.len().to_numpy(dtype=float, na_value=np.nan)
+    if (raw_lengths == width).all():           # every stamp padded: the common case
+        return None
     date_format = _date_part(time_format)
     date_width = _fixed_width_date(date_format)
     cells = text.astype("string").str.strip()
