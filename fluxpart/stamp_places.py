@@ -272,6 +272,9 @@ _SPELLED_ZONES = (
 )
 _SPELLED = re.compile(r"(?<![a-z])(" + "|".join(re.escape(p) for p, _ in _SPELLED_ZONES)
                       + r")(?![a-z])")
+#: Words for the stamps or the clock beside a zone written out on a line without a key
+_ABOUT_STAMPS = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|"
+                           r"zeit|zeiten|zeitstempel|uhrzeit)\b")
 #: "Logger clock: EST", "clock = UTC+1" (a colon or equals sign: "clock synchronised to
 #: UTC" names the clock only in passing, not the stamps')
 _CLOCK_KEY = re.compile(r"\bclock\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
@@ -362,8 +365,8 @@ def stated_offset(text: str) -> float | None:
     if inside:
         return column_utc_offset(inside.group(1) + (inside.group(2) or "").replace(" ", ""))
     spelled = spelled_zone_offset(lowered)        # "All times in Coordinated Universal Time"
-    if spelled is not None:
-        return spelled
+    if spelled is not None and _ABOUT_STAMPS.search(_SPELLED.sub(" ", lowered)):
+        return spelled                            # not a title that names a zone in passing
     if len(lowered) > 12:
         # a line of a zone name alone ("Europe/Helsinki"), else nothing stated
         return zone_offset(original) if _AREA_CITY.fullmatch(original) else None

@@ -83,6 +83,7 @@ def _read(path, time_format="%Y-%m-%d %H:%M", **kwargs):
     # other keys of a clock, read since layouts24
     ("Time reference: UTC", 0.0), ("Timebase: UTC", 0.0), ("Time standard = GMT", 0.0),
     ("Time base: 10", None),                      # a sampling rate, not an offset
+    ("Study of Pacific Standard Time effects", None),   # a zone named in passing
 ])
 def test_stated_offset_reads_zone_abbreviations_and_names(text, expected):
     assert stated_offset(text) == expected
