@@ -49,7 +49,8 @@ _PLACE_WORDS = {
 }
 #: Words a place word is written together with in one token ("endtime", "timestart")
 _TIME_WORDS = ("timestamp", "datetime", "stamp", "time", "date", "ts")
-_UTC = re.compile(r"(?<![a-z])(utc|gmt)(?:([+-])(\d{1,2})(?::?(\d{2}))?)?(?![a-z0-9])")
+#: (not the zone names "Etc/GMT-1", whose POSIX sign is the other way round: UTC+1)
+_UTC = re.compile(r"(?<![a-z])(?<!etc/)(utc|gmt)(?:([+-])(\d{1,2})(?::?(\d{2}))?)?(?![a-z0-9])")
 
 
 def _tokens(name: str) -> list[str]:
@@ -367,9 +368,10 @@ def stated_offset(text: str) -> float | None:
     spelled = spelled_zone_offset(lowered)        # "All times in Coordinated Universal Time"
     if spelled is not None and _ABOUT_STAMPS.search(_SPELLED.sub(" ", lowered)):
         return spelled                            # not a title that names a zone in passing
+    if _AREA_CITY.fullmatch(original):           # a line of a zone name alone
+        return zone_offset(original)
     if len(lowered) > 12:
-        # a line of a zone name alone ("Europe/Helsinki"), else nothing stated
-        return zone_offset(original) if _AREA_CITY.fullmatch(original) else None
+        return None
     offset = column_utc_offset(lowered)
     if offset is None and re.fullmatch(r"\(?[A-Z]{3,4}\)?", original):    # a line "EET"
         offset = zone_offset(original)

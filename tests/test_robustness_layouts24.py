@@ -84,6 +84,9 @@ def _read(path, time_format="%Y-%m-%d %H:%M", **kwargs):
     ("Time reference: UTC", 0.0), ("Timebase: UTC", 0.0), ("Time standard = GMT", 0.0),
     ("Time base: 10", None),                      # a sampling rate, not an offset
     ("Study of Pacific Standard Time effects", None),   # a zone named in passing
+    # POSIX signs in the database's Etc zones: Etc/GMT-1 is UTC+1 (IANA tz "etcetera"
+    # file (m)); read before as UTC-1
+    ("Time zone: Etc/GMT-1", 1.0), ("Etc/GMT+5", -5.0), ("TZ=Etc/UTC", 0.0),
 ])
 def test_stated_offset_reads_zone_abbreviations_and_names(text, expected):
     assert stated_offset(text) == expected
