@@ -230,8 +230,19 @@ _STAMP_PLACE = re.compile(
     r"(?<![a-z])(start|beginning|begin|end|middle|centre|center|midpoint)(?![a-z])")
 #: "interval begin", "period end" in a cell under the time column's name
 _CELL_PLACE = re.compile(r"\b(?:interval|period|averaging|window)\s+"
-                         r"(start|beginning|begin|end|middle|centre|center|midpoint)\b")
-_ZONE_KEY = re.compile(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt[\s_-]*offset)"
+                         r"(start|beginning|begin|end|middle|centre|center|midpoint)\b"
+                         r"|\((start|beginning|begin|end|middle|centre|center|midpoint)\)"
+                         r"|^\s*(start|beginning|begin|end|middle|centre|center|midpoint)\s*$")
+#: A clock right after a word for the stamps ("Timestamps (UTC)", "Timestamps are UTC",
+#: "All data in UTC", "Date/time: UTC", "Local time = UTC+2"): no digits between, so a
+#: date written before a clock ("Exported 2021-06-01 12:00 UTC") is not one
+_STAMPS_CLOCK = re.compile(
+    r"\b(?:time\s*stamps?|timestamps?|stamps?|date\s*/\s*time|date\s*time|datetime|"
+    r"local\s+time|all\s+data|all\s+times|times|zeitstempel)\b[^0-9.;]{0,15}?"
+    r"(?<![a-z])(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+_ZONE_KEY = re.compile(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt[\s_-]*offset"
+                       r"|offset\s+(?:from|to)\s+(?:utc|gmt))"
+                       r"(?:\s*\((?:h|hrs?|hours?)\))?"      # "UTC offset (h): 2"
                        r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*([^,;]*)")
 _IN_UTC = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?)\b[^.;]{0,24}?"
                      r"\bin\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
@@ -315,7 +326,9 @@ def stated_place(text: str, cell: bool = False) -> str | None:
     for stamp in _STAMP_PLACE.finditer(lowered):          # "Timestamp at start of ..."
         found.add(places.get(stamp.group(1), stamp.group(1)))
     if cell:                                              # a units cell "interval begin"
-        found |= {places.get(m.group(1), m.group(1)) for m in _CELL_PLACE.finditer(spaced)}
+        for m in _CELL_PLACE.finditer(spaced):
+            word = m.group(1) or m.group(2) or m.group(3)
+            found.add(places.get(word, word))
     return found.pop() if len(found) == 1 else None
 
 
@@ -365,6 +378,10 @@ def stated_offset(text: str) -> float | None:
     inside = _IN_UTC.search(lowered)
     if inside:
         return column_utc_offset(inside.group(1) + (inside.group(2) or "").replace(" ", ""))
+    found = {column_utc_offset(m.group(1) + (m.group(2) or "").replace(" ", ""))
+             for m in _STAMPS_CLOCK.finditer(lowered)}
+    if len(found) == 1 and "synchroni" not in lowered:   # not "clock synchronised to UTC"
+        return found.pop()
     spelled = spelled_zone_offset(lowered)        # "All times in Coordinated Universal Time"
     if spelled is not None and _ABOUT_STAMPS.search(_SPELLED.sub(" ", lowered)):
         return spelled                            # not a title that names a zone in passing

@@ -87,6 +87,12 @@ def _read(path, time_format="%Y-%m-%d %H:%M", **kwargs):
     # POSIX signs in the database's Etc zones: Etc/GMT-1 is UTC+1 (IANA tz "etcetera"
     # file (m)); read before as UTC-1
     ("Time zone: Etc/GMT-1", 1.0), ("Etc/GMT+5", -5.0), ("TZ=Etc/UTC", 0.0),
+    # a clock after other keys or right after a word for the stamps (ISO 8601 offsets (m))
+    ("Offset from UTC: +02:00", 2.0), ("UTC offset (h): 2", 2.0),
+    ("Local time = UTC + 2 h", 2.0), ("Timestamps (UTC)", 0.0),
+    ("Timestamps are UTC", 0.0), ("All data in UTC", 0.0), ("Date/time: UTC", 0.0),
+    ("Exported 2021-06-01 12:00 UTC", None),            # a date before the clock
+    ("Timestamps synchronised to UTC via GPS", None),   # the clock named in passing
 ])
 def test_stated_offset_reads_zone_abbreviations_and_names(text, expected):
     assert stated_offset(text) == expected
@@ -259,6 +265,10 @@ def test_overlap_differing_only_by_rounding_is_named(tmp_path):
     ("Ende des Messintervalls", False, "end"),
     ("interval begin", True, "start"),
     ("Intervallanfang", True, "start"),
+    ("yyyymmddhhmm (start)", True, "start"),
+    ("end", True, "end"),
+    ("Smp", True, None),
+    ("Averaging period 30 min; timestamps denote period start", False, "start"),
     # no statement of the place: a date of the record, a clause about other things
     ("Period start: 2021-01-01", False, None),
     ("Timestamp format: yyyy-mm-dd; data end 2021-12-31", False, None),
