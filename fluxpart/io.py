@@ -137,7 +137,7 @@ _FLOAT_SPELLINGS_OF_NAN = ("nan", "+nan", "-nan")
 #: loggers' PC software and old Windows programs still export them (Microsoft C runtime
 #: documentation of printf's infinity and NaN output (m)): no value, like "nan" and "inf"
 _MSVC_NAN = r"[+-]?1\.#(?:ind|qnan|snan)0*"
-_MSVC_INFINITY = r"(?i)^([+-]?)1\.#inf0*$"
+_MSVC_INFINITY = r"[+-]?1\.#inf0*"
 _WHITESPACE = "whitespace"
 _GLOB_CHARACTERS = set("*?[")
 #: A number written with digit grouping (thousands separators) for each decimal mark:
@@ -3445,15 +3445,25 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
     folded = cleaned.str.casefold()
     string_codes = {str(c).strip().casefold() for c in missing if isinstance(c, str)}
     is_code = folded.isin(string_codes).to_numpy() | (cleaned == "").to_numpy() \
-        | folded.isin(_FLOAT_SPELLINGS_OF_NAN).to_numpy() \
-        | folded.str.fullmatch(_MSVC_NAN).to_numpy(dtype=bool, na_value=False)
+        | folded.isin(_FLOAT_SPELLINGS_OF_NAN).to_numpy()
     _refuse_digit_grouping(cleaned, column, name, decimal, source, lines, comma_file)
     numeric_text = cleaned.str.replace(",", ".", regex=False) if decimal == "," else cleaned
-    numeric_text = numeric_text.str.replace(_MSVC_INFINITY, r"\1inf", regex=True)
     with np.errstate(over="ignore", invalid="ignore"):
         numbers = pd.to_numeric(numeric_text.where(~is_code, None), errors="coerce").to_numpy(
             dtype=float, na_value=np.nan)
     bad = np.isnan(numbers) & ~is_code
+    if bad.any():
+        # only the cells that are no number are tried as the old Windows spellings
+        rows = np.flatnonzero(bad)
+        odd = folded.iloc[rows]
+        nan_like = odd.str.fullmatch(_MSVC_NAN).to_numpy(dtype=bool, na_value=False)
+        inf_like = odd.str.fullmatch(_MSVC_INFINITY).to_numpy(dtype=bool, na_value=False)
+        if nan_like.any() or inf_like.any():
+            is_code, numbers = is_code.copy(), numbers.copy()
+            is_code[rows[nan_like]] = True
+            negative = odd.str.startswith("-").to_numpy(dtype=bool, na_value=False)
+            numbers[rows[inf_like]] = np.where(negative[inf_like], -np.inf, np.inf)
+            bad = np.isnan(numbers) & ~is_code
     if bad.any():
         first = int(np.flatnonzero(bad)[0])
         cell = cleaned.iloc[first]
