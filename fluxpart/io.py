@@ -132,6 +132,12 @@ _INPUT_KEYS = ("accept_units", "columns", "decimal", "delimiter", "encoding", "f
                "units")
 _INPUT_REQUIRED = ("path", "time_column", "time_format", "time_marks", "columns")
 _FLOAT_SPELLINGS_OF_NAN = ("nan", "+nan", "-nan")
+#: NaN and infinity as the Microsoft C runtime's printf wrote them before Visual Studio
+#: 2015 ("1.#QNAN", "-1.#IND", "1.#INF", with the precision's zeros: "-1.#IND00"), as
+#: loggers' PC software and old Windows programs still export them (Microsoft C runtime
+#: documentation of printf's infinity and NaN output (m)): no value, like "nan" and "inf"
+_MSVC_NAN = r"[+-]?1\.#(?:ind|qnan|snan)0*"
+_MSVC_INFINITY = r"[+-]?1\.#inf0*"
 _WHITESPACE = "whitespace"
 _GLOB_CHARACTERS = set("*?[")
 #: A number written with digit grouping (thousands separators) for each decimal mark:
@@ -3079,6 +3085,52 @@ def _boundary_shift(parts: list, stamp: pd.Timestamp) -> str:
     return ""
 
 
+def _rounding_only(stamps: np.ndarray, sources: np.ndarray, values: dict,
+                   names: list) -> tuple | None:
+    """``(coarse file, fine file)`` where every repeated stamp's values differ only by
+    rounding, else None.
+
+    Two copies of one record, one written with fewer decimals (a file re-exported with
+    another number format), differ in every value by at most half a unit of the
+    coarser copy's last decimal (0 to 6 decimals), whichever way the half was rounded.
+    The values alone cannot say which copy is the logger's, so this only names the
+    cause. Values after unit conversion are compared (a factor of 10 or 1000 moves the
+    decimals, not the test).
+
+    References
+    ----------
+    Common practice: a number written to d decimals lies within half a unit of its d-th
+    decimal of the value it stands for.
+    """
+    repeated = np.flatnonzero(pd.Index(stamps).duplicated(keep=False))
+    if repeated.size < 2 or repeated.size % 2:
+        return None
+    pairs = repeated.reshape(-1, 2)
+    if not (stamps[pairs[:, 0]] == stamps[pairs[:, 1]]).all():
+        return None                                  # a stamp in three copies
+    coarse = set()
+    for name in names:
+        one, other = values[name][pairs[:, 0]], values[name][pairs[:, 1]]
+        both = ~(np.isnan(one) | np.isnan(other)) & (one != other)
+        for x, y, i in zip(one[both], other[both], pairs[both], strict=True):
+            for digits in range(7):
+                half = 0.5 * 10.0 ** -digits * (1 + 1e-6)
+                if _has_decimals(x, digits) and abs(x - y) <= half:
+                    coarse.add((sources[i[0]], sources[i[1]]))
+                    break
+                if _has_decimals(y, digits) and abs(x - y) <= half:
+                    coarse.add((sources[i[1]], sources[i[0]]))
+                    break
+            else:
+                return None
+    return coarse.pop() if len(coarse) == 1 else None
+
+
+def _has_decimals(value: float, digits: int) -> bool:
+    """True where `value` is written with at most `digits` decimals (within 1e-9)."""
+    return abs(value - round(value, digits)) <= 1e-9 * max(1.0, abs(value))
+
+
 def _combine(parts: list) -> dict:
     """Join the files' rows in time order; merge identical rows, refuse conflicting ones."""
     names = list(parts[0]["values"])
@@ -3129,6 +3181,12 @@ def _combine(parts: list) -> dict:
             if sources[a] != sources[b]:
                 fix = (_shifted_overlap(parts, sources[a], sources[b])
                        or _boundary_shift(parts, pd.Timestamp(stamps[a])) or fix)
+                rounded = _rounding_only(stamps, sources, values, names)
+                if rounded:
+                    fix = (f"every such value of {rounded[0]!r} is that of {rounded[1]!r} "
+                           "rounded to fewer decimals (a re-export with another number "
+                           "format?): remove the overlap from one of them in a copy (keeping "
+                           f"{rounded[1]!r}'s moves no value by more than that rounding)")
             raise DuplicateTimestampError(
                 f"overlapping files disagree: stamp {pd.Timestamp(stamps[a])} is on line "
                 f"{int(lines[a])} of {sources[a]!r} and on line {int(lines[b])} of "
@@ -3394,6 +3452,18 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
         numbers = pd.to_numeric(numeric_text.where(~is_code, None), errors="coerce").to_numpy(
             dtype=float, na_value=np.nan)
     bad = np.isnan(numbers) & ~is_code
+    if bad.any():
+        # only the cells that are no number are tried as the old Windows spellings
+        rows = np.flatnonzero(bad)
+        odd = folded.iloc[rows]
+        nan_like = odd.str.fullmatch(_MSVC_NAN).to_numpy(dtype=bool, na_value=False)
+        inf_like = odd.str.fullmatch(_MSVC_INFINITY).to_numpy(dtype=bool, na_value=False)
+        if nan_like.any() or inf_like.any():
+            is_code, numbers = is_code.copy(), numbers.copy()
+            is_code[rows[nan_like]] = True
+            negative = odd.str.startswith("-").to_numpy(dtype=bool, na_value=False)
+            numbers[rows[inf_like]] = np.where(negative[inf_like], -np.inf, np.inf)
+            bad = np.isnan(numbers) & ~is_code
     if bad.any():
         first = int(np.flatnonzero(bad)[0])
         cell = cleaned.iloc[first]

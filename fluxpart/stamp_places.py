@@ -34,9 +34,10 @@ import pandas as pd
 
 from .config import setting_text
 
-__all__ = ["column_place", "column_utc_offset", "half_interval_message",
+__all__ = ["ZONE_ABBREVIATIONS", "column_place", "column_utc_offset", "half_interval_message",
            "date_only_repeats_hint", "name_conflict_message", "paired_stamps_message",
-           "parse_like", "repeated_stamp_hint", "stated_offset", "stated_place", "text_conflict_message"]
+           "parse_like", "repeated_stamp_hint", "spelled_zone_offset", "stated_offset", "stated_place",
+           "text_conflict_message", "zone_offset"]
 
 #: Words of a time column's name that say where its stamps sit in the interval (English,
 #: with the German words loggers of German-speaking networks write; common practice).
@@ -48,7 +49,8 @@ _PLACE_WORDS = {
 }
 #: Words a place word is written together with in one token ("endtime", "timestart")
 _TIME_WORDS = ("timestamp", "datetime", "stamp", "time", "date", "ts")
-_UTC = re.compile(r"(?<![a-z])(utc|gmt)(?:([+-])(\d{1,2})(?::?(\d{2}))?)?(?![a-z0-9])")
+#: (not the zone names "Etc/GMT-1", whose POSIX sign is the other way round: UTC+1)
+_UTC = re.compile(r"(?<![a-z])(?<!etc/)(utc|gmt)(?:([+-])(\d{1,2})(?::?(\d{2}))?)?(?![a-z0-9])")
 
 
 def _tokens(name: str) -> list[str]:
@@ -118,6 +120,95 @@ def column_utc_offset(name: str) -> float | None:
     return -offset if sign == "-" else float(offset)
 
 
+#: Zone abbreviations that name one fixed offset [h] each, as the time-zone database
+#: defines them (IANA tz database, files "europe", "northamerica", "asia",
+#: "australasia", "africa" (m)), with the German names of the European ones (MEZ =
+#: CET, OEZ = EET, WEZ = WET and their summer times, Einheiten- und Zeitgesetz § 4 (m)).
+#: Left out: abbreviations of two zones (CST: China or US Central; IST: India, Ireland
+#: or Israel; BST: British Summer or Bangladesh; AST: Atlantic or Arabia) and MET, also
+#: the short form of "meteorological" in column names and titles.
+ZONE_ABBREVIATIONS = {
+    "CET": 1.0, "MEZ": 1.0, "CEST": 2.0, "MESZ": 2.0, "MEST": 2.0,
+    "EET": 2.0, "OEZ": 2.0, "EEST": 3.0, "OESZ": 3.0,
+    "WET": 0.0, "WEZ": 0.0, "WEST": 1.0, "WESZ": 1.0, "MSK": 3.0,
+    "EST": -5.0, "EDT": -4.0, "CDT": -5.0, "MST": -7.0, "MDT": -6.0, "PST": -8.0,
+    "PDT": -7.0, "AKST": -9.0, "AKDT": -8.0, "HST": -10.0,
+    "JST": 9.0, "KST": 9.0, "HKT": 8.0, "SGT": 8.0, "WIB": 7.0,
+    "AEST": 10.0, "AEDT": 11.0, "ACST": 9.5, "ACDT": 10.5, "AWST": 8.0,
+    "NZST": 12.0, "NZDT": 13.0, "SAST": 2.0,
+}
+_ABBREVIATION = re.compile(r"(?<![A-Za-z])([A-Z]{3,4})(?![A-Za-z])")
+_AREA_CITY = re.compile(r"(?<![\w/])((?:Africa|America|Antarctica|Asia|Atlantic|Australia|"
+                        r"Europe|Indian|Pacific|Etc)/[A-Za-z_+\-0-9]+(?:/[A-Za-z_\-]+)?)")
+
+
+def zone_offset(text: str) -> float | None:
+    """The standard UTC offset a zone abbreviation or zone name in a text states [hours].
+
+    Parameters
+    ----------
+    text : str
+        Text as written (case kept), e.g. ``"EET"``, ``"Zeit (MEZ)"``,
+        ``"timezone: Europe/London"``.
+
+    Returns
+    -------
+    float or None
+        The offset [h]: a listed abbreviation's fixed offset (``ZONE_ABBREVIATIONS``;
+        upper case only, so the words "est" or "wet" are not read), or a time-zone
+        database name's standard time (the smaller of its January and July offsets:
+        daylight saving puts clocks ahead, also in the southern hemisphere); None
+        where the text names none, or several with different offsets.
+
+    References
+    ----------
+    IANA time zone database (zone names "Area/City", abbreviations and their offsets;
+    read through the standard library's ``zoneinfo``) (m). Daylight saving time
+    advances clocks by (usually) one hour (m).
+    """
+    from datetime import timezone as _timezone
+    from zoneinfo import ZoneInfo
+
+    found = set()
+    for match in _AREA_CITY.finditer(text):
+        try:
+            zone = ZoneInfo(match.group(1))
+        except (ValueError, OSError, KeyError):         # not a zone of the database
+            continue
+        offsets = [datetime(2021, month, 15, 12, tzinfo=_timezone.utc).astimezone(zone)
+                   .utcoffset().total_seconds() / 3600.0 for month in (1, 7)]
+        found.add(min(offsets))
+    if not found:
+        found = {ZONE_ABBREVIATIONS[m.group(1)] for m in _ABBREVIATION.finditer(text)
+                 if m.group(1) in ZONE_ABBREVIATIONS}
+    return found.pop() if len(found) == 1 else None
+
+
+def spelled_zone_offset(text: str) -> float | None:
+    """The standard UTC offset of a zone written out in words in a text [hours], or None.
+
+    Parameters
+    ----------
+    text : str
+        Text, e.g. ``"All times in Coordinated Universal Time"`` (0),
+        ``"TimeZone=W. Europe Standard Time"`` (1), ``"Eastern Standard Time"`` (-5).
+
+    Returns
+    -------
+    float or None
+        The offset [h] of the zone named (``_SPELLED_ZONES``); None where none is named,
+        or several with different offsets.
+
+    References
+    ----------
+    IANA time zone database (standard times of the zones) and Unicode CLDR's mapping of
+    Windows zone identifiers (m).
+    """
+    offsets = dict(_SPELLED_ZONES)
+    found = {offsets[m.group(1)] for m in _SPELLED.finditer(text.lower())}
+    return found.pop() if len(found) == 1 else None
+
+
 def _hours(offset: float) -> str:
     return f"UTC{offset:+g}" if offset else "UTC"
 
@@ -126,20 +217,93 @@ _STATED_PLACE = re.compile(
     r"\b(start|beginning|begin|end|middle|centre|center|mid-?point)\s+of\s+(?:the\s+|each\s+)?"
     r"(?:averaging\s+|measurement\s+|sampling\s+|logging\s+|record(?:ing)?\s+)?"
     r"(?:interval|period|window)")
-_ZONE_KEY = re.compile(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt[\s_-]*offset)"
+#: German statements of the place (common practice of German-speaking networks):
+#: "Intervallanfang", "Ende des Mittelungsintervalls"
+_GERMAN_PLACE = re.compile(
+    r"\b(?:mittelungs|mess)?intervall(anfang|beginn|ende|mitte)\b"
+    r"|\b(anfang|beginn|ende|mitte)\s+des\s+(?:mittelungs|mess)?(?:zeit)?"
+    r"(?:intervall|zeitraum)e?s\b")
+#: A place word within a few words after a word for the stamps, in one clause
+#: ("Timestamp at start of each 30-min average", "Time label: interval start")
+_STAMP_PLACE = re.compile(
+    r"\b(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?|zeitstempel)\b[^.;]{0,30}?"
+    r"(?<![a-z])(start|beginning|begin|end|middle|centre|center|midpoint)(?![a-z])")
+#: "interval begin", "period end" in a cell under the time column's name
+_CELL_PLACE = re.compile(r"\b(?:interval|period|averaging|window)\s+"
+                         r"(start|beginning|begin|end|middle|centre|center|midpoint)\b"
+                         r"|\((start|beginning|begin|end|middle|centre|center|midpoint)\)"
+                         r"|^\s*(start|beginning|begin|end|middle|centre|center|midpoint)\s*$")
+#: A clock right after a word for the stamps ("Timestamps (UTC)", "Timestamps are UTC",
+#: "All data in UTC", "Date/time: UTC", "Local time = UTC+2"): no digits between, so a
+#: date written before a clock ("Exported 2021-06-01 12:00 UTC") is not one
+_STAMPS_CLOCK = re.compile(
+    r"\b(?:time\s*stamps?|timestamps?|stamps?|date\s*/\s*time|date\s*time|datetime|"
+    r"local\s+time|all\s+data|all\s+times|times|zeitstempel)\b[^0-9.;]{0,15}?"
+    r"(?<![a-z])(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+_ZONE_KEY = re.compile(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt[\s_-]*offset"
+                       r"|offset\s+(?:from|to)\s+(?:utc|gmt))"
+                       r"(?:\s*\((?:h|hrs?|hours?)\))?"      # "UTC offset (h): 2"
                        r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*([^,;]*)")
 _IN_UTC = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?)\b[^.;]{0,24}?"
                      r"\bin\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+#: "Time reference: UTC", "Timebase: UTC", "Time standard = GMT" (a clock or zone follows;
+#: bare numbers are not read, since "time base: 10" may be a sampling rate)
+_REFERENCE_KEY = re.compile(r"(?:\btime[\s_-]*(?:reference|base|standard)|\btimebase"
+                            r"|\bzeitbasis|\bzeitreferenz)\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
+#: Zones written out in words, as logger software, Windows (its zone identifiers, "W.
+#: Europe Standard Time" for Berlin) and data documentation write them [h]; the longer
+#: phrase first, so "Australian Eastern Standard Time" is not read as US Eastern.
+#: Offsets: the zones' standard times in the IANA time zone database and the Windows
+#: zone identifiers of the Unicode CLDR mapping (m).
+_SPELLED_ZONES = (
+    ("australian eastern standard time", 10.0), ("aus eastern standard time", 10.0),
+    ("australian central standard time", 9.5), ("australian western standard time", 8.0),
+    ("us eastern standard time", -5.0), ("coordinated universal time", 0.0),
+    ("universal time coordinated", 0.0), ("greenwich mean time", 0.0),
+    ("western european summer time", 1.0), ("western european time", 0.0),
+    ("western european standard time", 0.0), ("central european summer time", 2.0),
+    ("central european time", 1.0), ("central european standard time", 1.0),
+    ("central europe standard time", 1.0), ("middle european time", 1.0),
+    ("w. europe standard time", 1.0), ("romance standard time", 1.0),
+    ("eastern european summer time", 3.0), ("eastern european time", 2.0),
+    ("eastern european standard time", 2.0), ("e. europe standard time", 2.0),
+    ("fle standard time", 2.0), ("gtb standard time", 2.0),
+    ("mitteleuropäische sommerzeit", 2.0), ("mitteleuropäische zeit", 1.0),
+    ("osteuropäische zeit", 2.0), ("westeuropäische zeit", 0.0),
+    ("moscow standard time", 3.0), ("russian standard time", 3.0),
+    ("eastern standard time", -5.0), ("eastern daylight time", -4.0),
+    ("central standard time", -6.0), ("central daylight time", -5.0),
+    ("mountain standard time", -7.0), ("mountain daylight time", -6.0),
+    ("pacific standard time", -8.0), ("pacific daylight time", -7.0),
+    ("alaskan standard time", -9.0), ("alaska standard time", -9.0),
+    ("hawaiian standard time", -10.0), ("hawaii standard time", -10.0),
+    ("japan standard time", 9.0), ("tokyo standard time", 9.0),
+    ("korea standard time", 9.0), ("china standard time", 8.0),
+    ("india standard time", 5.5), ("indian standard time", 5.5),
+    ("new zealand standard time", 12.0), ("south africa standard time", 2.0),
+)
+_SPELLED = re.compile(r"(?<![a-z])(" + "|".join(re.escape(p) for p, _ in _SPELLED_ZONES)
+                      + r")(?![a-z])")
+#: Words for the stamps or the clock beside a zone written out on a line without a key
+_ABOUT_STAMPS = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|"
+                           r"zeit|zeiten|zeitstempel|uhrzeit)\b")
+#: "Logger clock: EST", "clock = UTC+1" (a colon or equals sign: "clock synchronised to
+#: UTC" names the clock only in passing, not the stamps')
+_CLOCK_KEY = re.compile(r"\bclock\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
 _BARE_OFFSET = re.compile(r"^([+-])(\d{1,2})(?::?(\d{2}))?$")
 
 
-def stated_place(text: str) -> str | None:
+def stated_place(text: str, cell: bool = False) -> str | None:
     """The place in the interval a line of text states ("end of the averaging period").
 
     Parameters
     ----------
     text : str
         A line above the header, or a cell under the time column's name.
+    cell : bool
+        True for a cell under the time column's name, which speaks of the stamps, so
+        "interval begin" or "period end" there states a place; on a line above the
+        header such words may date the record ("Period start: 2021-01-01").
 
     Returns
     -------
@@ -151,8 +315,20 @@ def stated_place(text: str) -> str | None:
     Common practice: logger and export headers state the place of the stamp in words.
     """
     places = {"beginning": "start", "begin": "start", "centre": "middle",
-              "center": "middle", "midpoint": "middle", "mid-point": "middle"}
-    found = {places.get(m.group(1), m.group(1)) for m in _STATED_PLACE.finditer(text.lower())}
+              "center": "middle", "midpoint": "middle", "mid-point": "middle",
+              "anfang": "start", "beginn": "start", "ende": "end", "mitte": "middle"}
+    lowered = text.lower()
+    # "end-of-period" written with hyphens reads as "end of period"
+    spaced = re.sub(r"(?<=[a-z])-(?=(?:of|the|each|averaging|measurement|sampling|logging|"
+                    r"record|recording|interval|period|window)\b)|(?<=\bof)-", " ", lowered)
+    found = {places.get(m.group(1), m.group(1)) for m in _STATED_PLACE.finditer(spaced)}
+    found |= {places[m.group(1) or m.group(2)] for m in _GERMAN_PLACE.finditer(lowered)}
+    for stamp in _STAMP_PLACE.finditer(lowered):          # "Timestamp at start of ..."
+        found.add(places.get(stamp.group(1), stamp.group(1)))
+    if cell:                                              # a units cell "interval begin"
+        for m in _CELL_PLACE.finditer(spaced):
+            word = m.group(1) or m.group(2) or m.group(3)
+            found.add(places.get(word, word))
     return found.pop() if len(found) == 1 else None
 
 
@@ -174,7 +350,16 @@ def stated_offset(text: str) -> float | None:
     ----------
     ISO 8601-1:2019 (offsets from UTC as ``±hh``, ``±hhmm``, ``±hh:mm``) (m).
     """
-    lowered = text.lower().replace("\u2212", "-").strip().strip('"').strip()
+    original = text.replace("\u2212", "-").strip().strip('"').strip()
+    lowered = original.lower()
+    key = _CLOCK_KEY.search(lowered) or _REFERENCE_KEY.search(lowered)
+    if key and not _ZONE_KEY.search(lowered):
+        # "Logger clock: EST", "Time reference: UTC": a clock or zone, not bare hours
+        value = key.group(1).strip().strip('"\'').strip()
+        offset = column_utc_offset(value)
+        if offset is None and len(lowered) == len(original):
+            offset = zone_offset(original[key.start(1):key.end(1)])
+        return offset if offset is not None else spelled_zone_offset(value)
     key = _ZONE_KEY.search(lowered)
     if key:
         value = key.group(1).strip().strip('"\'').strip()
@@ -186,11 +371,28 @@ def stated_offset(text: str) -> float | None:
         hours = re.fullmatch(r"[+-]?\d{1,2}(?:\.\d+)?", value.replace(" ", ""))
         if hours and abs(float(hours.group(0))) <= 14:      # "UTC offset: 1" (hours)
             return float(hours.group(0))
-        return column_utc_offset(value)
+        offset = column_utc_offset(value)
+        if offset is None and len(lowered) == len(original):   # "Time zone: EET"
+            offset = zone_offset(original[key.start(1):key.end(1)])
+        return offset if offset is not None else spelled_zone_offset(value)
     inside = _IN_UTC.search(lowered)
     if inside:
         return column_utc_offset(inside.group(1) + (inside.group(2) or "").replace(" ", ""))
-    return column_utc_offset(lowered) if len(lowered) <= 12 else None
+    found = {column_utc_offset(m.group(1) + (m.group(2) or "").replace(" ", ""))
+             for m in _STAMPS_CLOCK.finditer(lowered)}
+    if len(found) == 1 and "synchroni" not in lowered:   # not "clock synchronised to UTC"
+        return found.pop()
+    spelled = spelled_zone_offset(lowered)        # "All times in Coordinated Universal Time"
+    if spelled is not None and _ABOUT_STAMPS.search(_SPELLED.sub(" ", lowered)):
+        return spelled                            # not a title that names a zone in passing
+    if _AREA_CITY.fullmatch(original):           # a line of a zone name alone
+        return zone_offset(original)
+    if len(lowered) > 12:
+        return None
+    offset = column_utc_offset(lowered)
+    if offset is None and re.fullmatch(r"\(?[A-Z]{3,4}\)?", original):    # a line "EET"
+        offset = zone_offset(original)
+    return offset
 
 
 def text_conflict_message(statements: list, time_marks: str, time_format: str,
@@ -217,7 +419,7 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
     Aubinet, Vesala and Papale (2012) (m); ISO 8601-1:2019 (m).
     """
     for where, text in statements:
-        place = stated_place(text)
+        place = stated_place(text, cell=where.startswith("the cell under"))
         if place is not None and place != time_marks:
             return (f"{where} ({text.strip()[:80]!r}) states stamps at the interval's {place}"
                     f", but time_marks = {setting_text(time_marks)} reads them as its "
@@ -231,6 +433,8 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
         offset = stated_offset(text)
         if offset is None and where.startswith("the cell under"):
             offset = column_utc_offset(text)      # "yyyy-mm-dd hh:mm UTC" under the stamps
+            if offset is None:                    # "yyyy-mm-dd hh:mm MEZ", "EET"
+                offset = zone_offset(text)
         if offset is not None and not np.isclose(offset, utc_offset):
             return (f"{where} ({text.strip()[:80]!r}) states stamps in {_hours(offset)}, "
                     f"but without [input] time_zone {_read_as(utc_offset, offset)} if the "
@@ -296,6 +500,8 @@ def name_conflict_message(time_columns: tuple, time_marks: str, time_format: str
         return None
     for column in time_columns:
         offset = column_utc_offset(column)
+        if offset is None:                        # "Zeit (MEZ)", "time_EET"
+            offset = zone_offset(column)
         if offset is not None and not np.isclose(offset, utc_offset):
             return (f"[input] time_column {column!r} is named for stamps in "
                     f"{_hours(offset)}, but without [input] time_zone "

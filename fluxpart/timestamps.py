@@ -51,7 +51,7 @@ __all__ = [
 INTERVALS_MINUTES = (30, 60)
 
 _RANGES_SHOWN = 5
-_OFFSET_AT_END = re.compile(r"(?:Z|[+-]\d{2}:?\d{2})$")
+_OFFSET_AT_END = re.compile(r"(?:(?<![A-Za-z])Z|[+-]\d{2}:?\d{2})$")   # not "MEZ"
 #: A stamp cell that holds no date: empty, a negative number or one of at most five
 #: digits (a missing code such as -9999 in the time column)
 _NO_DATE = re.compile(r"\s*(?:-\d+(?:[.,]\d*)?|\+?\d{1,5}(?:[.,]\d*)?)?\s*")
@@ -80,11 +80,18 @@ _HOUR_24 = (
 #: too, so a civil-time logger that labels every stamp is read without a time_zone,
 #: its repeated autumn hour told apart by the labels. Summer labels that name other
 #: zones as well (BST: British Summer Time or Bangladesh Standard Time) are not read.
+#: The German names of the same times, which loggers set up in German write (MEZ/MESZ
+#: "Mitteleuropäische (Sommer)Zeit" = CET/CEST, OEZ/OESZ = EET/EEST, WEZ/WESZ =
+#: WET/WEST; Duden and the German time law, Einheiten- und Zeitgesetz § 4 (m)), are read
+#: as the English labels are.
 _STANDARD_TIME_LABELS = {"CET": "Etc/GMT-1", "MET": "Etc/GMT-1", "EET": "Etc/GMT-2",
                          "WET": "Etc/GMT", "CEST": "Etc/GMT-2", "MEST": "Etc/GMT-2",
-                         "EEST": "Etc/GMT-3", "WEST": "Etc/GMT-1"}
+                         "EEST": "Etc/GMT-3", "WEST": "Etc/GMT-1",
+                         "MEZ": "Etc/GMT-1", "MESZ": "Etc/GMT-2", "OEZ": "Etc/GMT-2",
+                         "OESZ": "Etc/GMT-3", "WEZ": "Etc/GMT", "WESZ": "Etc/GMT-1"}
 _STANDARD_TIME_LABEL = re.compile(
-    r"(?<![A-Za-z/])(CEST|MEST|EEST|WEST|CET|MET|EET|WET)(?![A-Za-z/])")
+    r"(?<![A-Za-z/])(CEST|MEST|EEST|WEST|MESZ|OESZ|WESZ|CET|MET|EET|WET|MEZ|OEZ|WEZ)"
+    r"(?![A-Za-z/])")
 
 #: IANA zone names (or their first part) that denote a fixed offset rather than a place.
 _OFFSET_ZONE_PREFIXES = frozenset({"UTC", "Etc", "GMT", "UCT", "Zulu", "Universal"})
@@ -266,6 +273,70 @@ def _fixed_width_stamps(text: pd.Series, time_format: str) -> pd.Series | None:
 
 
 _CLOCK_FIELD = re.compile(r"%H%M(%S)?")
+#: Two numeric fields written together without a character between them
+_ADJACENT_FIELDS = re.compile(r"%[YmdHMS]%[mdHMS]")
+
+
+def _unpadded_compact_message(text: pd.Series, time_format: str) -> tuple | None:
+    """``(row, message)`` where stamps of a compact format drop a leading zero, else None.
+
+    Under a format of numeric fields written together (``"%Y%m%d%H%M"``) a field
+    written without its leading zero (month 1 for 01, hour 3 for 03) runs into the
+    next: ``"2021111"`` is 1 November or 11 January, and strptime picks one reading
+    per stamp by its field patterns, which may be neither the one meant nor the same
+    for every stamp. Such stamps are 1 to 3 characters shorter than the format's width
+    and hold only its digits and literal characters; stamps of the date alone (midnight
+    written as the date, read elsewhere) have the date part's width and are left.
+
+    References
+    ----------
+    ISO 8601-1:2019, basic format: every field of fixed width with leading zeros,
+    since without separators only the width tells the fields apart (m).
+    """
+    layout = _fixed_width_layout(time_format)
+    if layout is None or not _ADJACENT_FIELDS.search(time_format) or len(text) == 0:
+        return None
+    width = layout[2]
+    raw_lengths = text.str.len().to_numpy(dtype=float, na_value=np.nan)
+    if (raw_lengths == width).all():           # every stamp padded: the common case
+        return None
+    date_format = _date_part(time_format)
+    date_width = _fixed_width_date(date_format)
+    cells = text.astype("string").str.strip()
+    lengths = cells.str.len().to_numpy(dtype=float, na_value=np.nan)
+    literals = re.escape("".join(sorted({chr(code) for _, code in layout[1]})))
+    pattern = f"[0-9{literals}]+" if literals else "[0-9]+"
+    short = ((lengths >= width - 3) & (lengths < width) & (lengths != date_width)
+             & cells.str.fullmatch(pattern).to_numpy(dtype=bool, na_value=False))
+    if not short.any():
+        return None
+    first = int(np.flatnonzero(short)[0])
+    return first, (f"{int(lengths[first])} characters where time_format = "
+                   f"{setting_text(time_format)} writes {width} ({int(short.sum())} such "
+                   "stamp(s)): a month, day, hour or minute written without its leading "
+                   "zero runs into the next field, so the stamp has more than one reading "
+                   "('2021111' is 1 November or 11 January); write every field with its "
+                   "leading zero in a copy of the file, or separate the fields and name "
+                   "them in time_format (%Y-%m-%d %H:%M reads them unpadded)")
+
+
+def _fixed_width_date(date_format: str | None) -> int:
+    """Width of a date format of fixed-width fields, or -1."""
+    if not date_format:
+        return -1
+    width = 0
+    i = 0
+    while i < len(date_format):
+        if date_format[i] == "%":
+            code = date_format[i + 1:i + 2]
+            if code not in _FIXED_FIELDS:
+                return -1
+            width += _FIXED_FIELDS[code][0]
+            i += 2
+        else:
+            width += 1
+            i += 1
+    return width
 
 
 def _hour_only_offsets(text: pd.Series) -> pd.Series:
@@ -746,6 +817,11 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             "hour of a 12-hour clock, which needs %p (AM/PM) beside it; without it 1 PM is "
             "read as 1 AM: add %p where the stamps carry AM/PM, or write the hour as %H "
             "(a 24-hour clock)")
+    if time_format.upper() == "ISO8601":
+        # RFC 3339, section 5.6: the "T" and the "Z" of UTC may be written in lower case
+        # (m); pandas reads only upper case
+        text = (text.str.replace(r"(?<=\d)t(?=\d)", "T", regex=True)
+                .str.replace(r"(?<=\d)z$", "Z", regex=True))
     if time_format.endswith("Z") and not time_format.endswith("%Z") and time_zone is None:
         time_format = time_format[:-1] + "%z"       # "...%SZ": the Z of UTC, not a letter
     with_offset = _carries_offset(text, time_format)
@@ -770,6 +846,12 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         # %p reads the letters alone, in either case
         text = text.str.replace(r"(?i)(?<![A-Za-z])([ap])\.\s?m\.", r"\1m", regex=True)
     text = _pad_clock_fields(text, time_format)
+    unpadded = _unpadded_compact_message(text, time_format)
+    if unpadded:
+        first = unpadded[0]
+        raise TimestampError(
+            f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
+            f"{text.iloc[first]!r}, {unpadded[1]}")
     readable = _standard_time_labels(text, time_format)
     parsed = _to_datetime(readable, time_format, utc=with_offset)
     failed = parsed.isna().to_numpy()
@@ -851,7 +933,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             # PDT), several of which are ambiguous
             hint = (f"; the zone abbreviation {text.iloc[first].split()[-1]!r} is not read "
                     "(only UTC, GMT, the European labels CET, MET, EET, WET and their summer "
-                    "times CEST, MEST, EEST, WEST, and time-zone database names such as "
+                    "times CEST, MEST, EEST, WEST, their German names MEZ, MESZ, OEZ, "
+                    "OESZ, WEZ, WESZ, and time-zone database names such as "
                     "EST): write the "
                     "stamps with a numeric offset (+02:00, %z), or without the abbreviation "
                     "and with [input] time_zone = \"Area/City\"")

@@ -158,10 +158,12 @@ def test_a_second_stamp_column_one_interval_away_tells_the_place(tmp_path, mappe
     ("Time zone: UTC", 0.0), ("# tz = +02:00", 2.0), ("UTC offset: 1", 1.0),
     ("TimeZone=GMT-3", -3.0), ("Timestamps in UTC+1", 1.0), ("Time zone (UTC+05:30)", 5.5),
     ("Logger clock synchronised to UTC by GPS; stamps in local time (UTC+1)", None),
-    ("Station: Quillmoor (fictional)", None), ("timezone: Europe/Berlin", None)])
+    ("Station: Quillmoor (fictional)", None), ("timezone: Europe/Berlin", 1.0)])
 def test_clock_lines_are_read_as_iso_8601_offsets(line, stated):
     """ISO 8601-1:2019 (m) offsets after a "time zone" key, or "in UTC" (common
-    practice); a line naming UTC in passing, or a zone name, states no offset."""
+    practice); a line naming UTC in passing states no offset; a zone name states its
+    standard offset (since layouts24; Berlin's winter offset from the standard library's
+    zoneinfo, UTC+1)."""
     assert stated_offset(line) == stated
 
 
