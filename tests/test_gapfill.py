@@ -1026,6 +1026,10 @@ def test_local_linear_corrections_of_joined_blocks_are_the_bits_of_one_call_per_
     monkeypatch.setattr("fluxpart.gapfill._CORRECTION_BATCH_RECORDS", 1)
     one_by_one = fill_marginal_module(measured, drivers, index, is_night=_night(drivers))
     pd.testing.assert_frame_equal(batched, one_by_one, check_exact=True)
+    # and the batches of 2**18 slope records that 0.23.0 took (round speed18: 2**15 now)
+    monkeypatch.setattr("fluxpart.gapfill._CORRECTION_BATCH_RECORDS", 1 << 18)
+    wide = fill_marginal_module(measured, drivers, index, is_night=_night(drivers))
+    pd.testing.assert_frame_equal(batched, wide, check_exact=True)
 
 
 def test_positive_definite_solve_matches_numpy():

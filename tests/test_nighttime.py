@@ -707,3 +707,101 @@ def test_records_below_t0_are_left_out_of_the_fits(rng):
     assert with_cold.e0_annual.equals(without.e0_annual)
     np.testing.assert_array_equal(with_cold.reco, without.reco)
     assert abs(with_cold.e0_annual["e0"].iloc[0] - base.e0_annual["e0"].iloc[0]) < 30.0
+
+
+# --------------------------------------------------------------------------- #
+# Speed without a changed bit (round speed18): the weighted-median sort
+# --------------------------------------------------------------------------- #
+def _stable_reference(order, key_sorted, ratio_sorted, weight_sorted):
+    """The stable sort's order from any ascending order: NumPy's ``np.lexsort`` (a
+    general-purpose library; stable) by key, then position."""
+    order[:] = np.take_along_axis(order, np.lexsort((order, key_sorted), axis=-1), axis=1)
+    return np.arange(order.shape[0])
+
+
+def test_tie_order_gives_numpys_stable_argsort_values():
+    """External check: NumPy's ``np.argsort(kind="stable")``. Keys with many ties (few
+    distinct values), NaNs, -0.0, ties holding equal and unequal (ratio, weight) bits: the
+    ratios and weights sorted by the default sort plus the tie order are bit for bit those
+    sorted by the stable argsort, and where every tie differs the order itself is."""
+    from fluxpart.partition.nighttime import _order_ties
+
+    rng = np.random.default_rng(18)
+    for trial in range(150):
+        rows, size = int(rng.integers(1, 6)), int(rng.integers(1, 300))
+        key = (rng.normal(size=(rows, size)) if trial % 5 == 0
+               else rng.integers(0, int(rng.integers(1, 30)), (rows, size)) / 7.0 + 3.0)
+        if trial % 3 == 0:
+            key[rng.random((rows, size)) < 0.05] = np.nan
+        if trial % 4 == 0:
+            key[:, ::4] = -0.0
+        # unequal values within ties (every record its own), or values set by the key
+        ratio = rng.normal(size=key.shape) if trial % 2 else np.nan_to_num(key) * 2.0
+        weight = rng.random(key.shape) if trial % 2 else np.ones(key.shape)
+        offset = (np.arange(rows) * size)[:, None]
+        stable = np.argsort(key, axis=1, kind="stable") + offset
+        order = np.argsort(key, axis=1) + offset
+        _order_ties(order, key.take(order), ratio.take(order), weight.take(order))
+        np.testing.assert_array_equal(ratio.take(order).view(np.int64),
+                                      ratio.take(stable).view(np.int64))
+        np.testing.assert_array_equal(weight.take(order).view(np.int64),
+                                      weight.take(stable).view(np.int64))
+        if trial % 2:
+            np.testing.assert_array_equal(order, stable)
+
+
+def test_weighted_median_among_equal_keys_is_the_stable_sorts(monkeypatch):
+    """External check: NumPy's stable ``np.lexsort``. Ratios too large for the arctan of
+    the sort key to tell apart (equal keys, different ratios) carrying most of a window's
+    weight put the weighted median among equal keys: the Rref and deviations of every grid
+    E0 equal those of the rows sorted in the stable order, bit for bit."""
+    from fluxpart.partition import nighttime
+
+    rng = np.random.default_rng(7)
+    sizes = np.array([40, 60, 50])
+    starts = np.r_[0, np.cumsum(sizes)[:-1]]
+    window = np.repeat(np.arange(sizes.size), sizes)
+    term = rng.uniform(0.002, 0.006, sizes.sum())
+    flux = rng.uniform(1.0, 5.0, sizes.sum())
+    flux[rng.random(sizes.sum()) < 0.7] = rng.uniform(1e17, 9e17)    # arctan(ratio) = pi/2
+    flux[::3] *= rng.uniform(1.0, 3.0, flux[::3].size)
+    grid = np.arange(50.0, 300.0, 10.0)
+    fast = nighttime._deviation_rows(flux, term, starts, sizes, window, grid)
+    monkeypatch.setattr(nighttime, "_order_ties", _stable_reference)
+    stable = nighttime._deviation_rows(flux, term, starts, sizes, window, grid)
+    for mine, theirs in zip(fast, stable, strict=True):
+        np.testing.assert_array_equal(mine.view(np.int64), theirs.view(np.int64))
+
+
+def test_joint_e0_with_zero_fluxes_equals_the_stable_sort_profile(rng, monkeypatch):
+    """External check: NumPy's stable ``np.lexsort``. Night NEE rounded to 0.1 µmol m-2
+    s-1 (zero fluxes at many temperatures: equal keys, unequal weights) and temperature to
+    1 °C give the same absolute deviations and Rref of every grid E0 and window, and so the
+    same joint E0 table, bit for bit as the profile whose rows are all put in the stable
+    sort's order."""
+    from fluxpart.partition import nighttime
+
+    index, nee, _, temperature, night, _ = _synthetic(rng, e0=220.0)
+    nee, temperature = np.round(nee, 1), np.round(temperature, 0)
+    assert (nee[night] == 0.0).sum() > 50
+    profile = nighttime._absolute_deviation_profile
+
+    def fit(record):
+        def recorded(*args):
+            out = profile(*args)
+            record.append(out)
+            return out
+
+        monkeypatch.setattr(nighttime, "_absolute_deviation_profile", recorded)
+        return fit_e0_joint(index, nee, temperature, night)
+
+    fast_profiles, stable_profiles = [], []
+    fast = fit(fast_profiles)
+    monkeypatch.setattr(nighttime, "_order_ties", _stable_reference)
+    stable = fit(stable_profiles)
+    pd.testing.assert_frame_equal(fast, stable, check_exact=True)
+    assert np.isfinite(fast["e0"]).all() and len(fast_profiles) == len(stable_profiles) > 0
+    for (deviation, rref), (deviation_s, rref_s) in zip(fast_profiles, stable_profiles,
+                                                        strict=True):
+        np.testing.assert_array_equal(deviation.view(np.int64), deviation_s.view(np.int64))
+        np.testing.assert_array_equal(rref.view(np.int64), rref_s.view(np.int64))
