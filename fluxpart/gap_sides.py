@@ -12,6 +12,16 @@ certain as one in midsummer.
 This module fills each long gap twice more, once from the records before it only and
 once from the records after it only, and states the error of the gap's sum as that of
 a change of state at an unknown time within the gap (:func:`state_change_variance`).
+
+References
+----------
+Reichstein, M. et al. (2005). On the separation of net ecosystem exchange into
+assimilation and ecosystem respiration: review and improved algorithm. Global Change
+Biology 11, 1424–1439 (marginal distribution sampling's ±7-day first window).
+
+Richardson, A. D. & Hollinger, D. Y. (2007). A method to estimate the additional
+uncertainty in gap-filled NEE resulting from long gaps in the CO2 flux record. Agric.
+For. Meteorol. 147, 199–208 (long gaps carry most of the gap-filling error).
 """
 
 from __future__ import annotations
@@ -48,10 +58,7 @@ def long_gaps(filled, records_per_day: int, min_days: float = MIN_GAP_DAYS, brea
         First record of each long gap and its length [records].
     References
     ----------
-    Reichstein, M. et al. (2005). Global Change Biology 11, 1424–1439 (marginal
-    distribution sampling's ±7-day first window); Richardson, A. D. & Hollinger, D. Y.
-    (2007). Agric. For. Meteorol. 147, 199–208 (long gaps carry most of the
-    gap-filling error). The two one-sided fills are our rule (module docstring).
+    Reichstein et al. (2005); Richardson & Hollinger (2007): see the module docstring.
     """
     filled = np.asarray(filled, dtype=bool)
     edges = np.diff(np.concatenate([[0], filled.astype(np.int8), [0]]))
@@ -88,10 +95,7 @@ def one_sided_fills(nee_measured, starts, lengths, fill):
         found no donor.
     References
     ----------
-    Reichstein, M. et al. (2005). Global Change Biology 11, 1424–1439 (marginal
-    distribution sampling's ±7-day first window); Richardson, A. D. & Hollinger, D. Y.
-    (2007). Agric. For. Meteorol. 147, 199–208 (long gaps carry most of the
-    gap-filling error). The two one-sided fills are our rule (module docstring).
+    Reichstein et al. (2005); Richardson & Hollinger (2007): see the module docstring.
     """
     nee = np.asarray(nee_measured, dtype=float)
     before = np.full(nee.size, np.nan)
@@ -224,10 +228,7 @@ def state_change_notes(index, fill, before, after, interval_minutes: int,
         and as filled [g C m-2], and that 1 sigma.
     References
     ----------
-    Reichstein, M. et al. (2005). Global Change Biology 11, 1424–1439 (marginal
-    distribution sampling's ±7-day first window); Richardson, A. D. & Hollinger, D. Y.
-    (2007). Agric. For. Meteorol. 147, 199–208 (long gaps carry most of the
-    gap-filling error). The two one-sided fills are our rule (module docstring).
+    Reichstein et al. (2005); Richardson & Hollinger (2007): see the module docstring.
     """
     fill = np.asarray(fill, dtype=float)
     before = np.asarray(before, dtype=float)

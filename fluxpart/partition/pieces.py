@@ -68,10 +68,7 @@ def break_times(times, breaks) -> np.ndarray:
 
     References
     ----------
-    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439 (windows
-    interpolated between their centres); Lasslop, G. et al. (2010). Global Change
-    Biology 16:187–208 (windows moved along the record). The cut at events is our
-    rule (module docstring).
+    Reichstein et al. (2005); Lasslop et al. (2010): see the module docstring.
     """
     times = np.asarray(times, dtype=float)
     if breaks is None:
@@ -99,10 +96,7 @@ def piece_of(values, edges) -> np.ndarray:
 
     References
     ----------
-    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439 (windows
-    interpolated between their centres); Lasslop, G. et al. (2010). Global Change
-    Biology 16:187–208 (windows moved along the record). The cut at events is our
-    rule (module docstring).
+    Reichstein et al. (2005); Lasslop et al. (2010): see the module docstring.
     """
     return np.searchsorted(edges, values, side="right")
 
@@ -230,10 +224,7 @@ def piece_interp(times, centres, values, edges) -> tuple:
 
     References
     ----------
-    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439 (windows
-    interpolated between their centres); Lasslop, G. et al. (2010). Global Change
-    Biology 16:187–208 (windows moved along the record). The cut at events is our
-    rule (module docstring).
+    Reichstein et al. (2005); Lasslop et al. (2010): see the module docstring.
     """
     times = np.asarray(times, dtype=float)
     centres = np.asarray(centres, dtype=float)
@@ -280,10 +271,7 @@ def piece_neighbours(times, centres, edges, neighbours) -> tuple:
 
     References
     ----------
-    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439 (windows
-    interpolated between their centres); Lasslop, G. et al. (2010). Global Change
-    Biology 16:187–208 (windows moved along the record). The cut at events is our
-    rule (module docstring).
+    Reichstein et al. (2005); Lasslop et al. (2010): see the module docstring.
     """
     times = np.asarray(times, dtype=float)
     before, after, share = neighbours(times, centres)
@@ -322,10 +310,7 @@ def pieces_without_windows(index, breaks, centres) -> list:
 
     References
     ----------
-    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439 (windows
-    interpolated between their centres); Lasslop, G. et al. (2010). Global Change
-    Biology 16:187–208 (windows moved along the record). The cut at events is our
-    rule (module docstring).
+    Reichstein et al. (2005); Lasslop et al. (2010): see the module docstring.
     """
     if len(index) == 0:
         return []
@@ -367,10 +352,7 @@ def window_notes(index, breaks, night_windows=None, day_parameters=None) -> list
 
     References
     ----------
-    Reichstein, M. et al. (2005). Global Change Biology 11:1424–1439 (windows
-    interpolated between their centres); Lasslop, G. et al. (2010). Global Change
-    Biology 16:187–208 (windows moved along the record). The cut at events is our
-    rule (module docstring).
+    Reichstein et al. (2005); Lasslop et al. (2010): see the module docstring.
     """
     notes = []
     tables = (("nighttime", night_windows, None), ("daytime", day_parameters, "accepted"))
