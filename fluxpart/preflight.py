@@ -552,6 +552,15 @@ def _repeated_records(frame: pd.DataFrame, interval_minutes: float) -> list:
         "measured; mark them missing in a copy of the file"), False)]
 
 
+
+def _copied_drivers(frame, records, shift) -> list:
+    """The drivers (of ``_REPEATED_VARIABLES``) whose values at `records` equal, value for
+    value, those `shift` records earlier: rows pasted twice rather than the flux alone."""
+    drivers = [n for n in _REPEATED_VARIABLES if n != "nee" and n in frame.columns]
+    return [n for n in drivers if np.array_equal(
+        *(pd.to_numeric(frame[n], errors="coerce").to_numpy(dtype=float)[r]
+          for r in (records, records - shift)), equal_nan=True)]
+
 def _repeated_nee(frame: pd.DataFrame, interval_minutes: float) -> list:
     """Runs of measured NEE equal, value for value, to the NEE whole days earlier
     (the flux column pasted over other days; :func:`_repeated_records` names records
@@ -587,10 +596,7 @@ def _repeated_nee(frame: pd.DataFrame, interval_minutes: float) -> list:
     days, records = best
     first, last = int(records[0]), int(records[-1])
     lag = days * per_day
-    drivers = [n for n in _REPEATED_VARIABLES if n != "nee" and n in frame.columns]
-    copied = [n for n in drivers if np.array_equal(
-        *(pd.to_numeric(frame[n], errors="coerce").to_numpy(dtype=float)[r]
-          for r in (records, records - lag)), equal_nan=True)]
+    copied = _copied_drivers(frame, records, lag)
     others = (f", and so do {', '.join(copied)} (rows pasted twice)" if copied
               else ", while the drivers do not (the flux column pasted over other days)")
     return [Finding("input (repeated NEE)", (
@@ -714,10 +720,7 @@ def _repeated_nee_any_lag(frame: pd.DataFrame, interval_minutes: float) -> list:
         return []
     shift, records = best
     first_record, last_record = int(records[0]), int(records[-1])
-    drivers = [n for n in _REPEATED_VARIABLES if n != "nee" and n in frame.columns]
-    copied_drivers = [n for n in drivers if np.array_equal(
-        *(pd.to_numeric(frame[n], errors="coerce").to_numpy(dtype=float)[r]
-          for r in (records, records - shift)), equal_nan=True)]
+    copied_drivers = _copied_drivers(frame, records, shift)
     others = (f", and so do {', '.join(copied_drivers)} (rows pasted twice)" if copied_drivers
               else ", while the drivers do not (the flux column pasted over other records)")
     return [Finding("input (repeated NEE)", (
