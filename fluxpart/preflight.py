@@ -552,7 +552,6 @@ def _repeated_records(frame: pd.DataFrame, interval_minutes: float) -> list:
         "measured; mark them missing in a copy of the file"), False)]
 
 
-
 def _copied_drivers(frame, records, shift) -> list:
     """The drivers (of ``_REPEATED_VARIABLES``) whose values at `records` equal, value for
     value, those `shift` records earlier: rows pasted twice rather than the flux alone."""
@@ -560,6 +559,7 @@ def _copied_drivers(frame, records, shift) -> list:
     return [n for n in drivers if np.array_equal(
         *(pd.to_numeric(frame[n], errors="coerce").to_numpy(dtype=float)[r]
           for r in (records, records - shift)), equal_nan=True)]
+
 
 def _repeated_nee(frame: pd.DataFrame, interval_minutes: float) -> list:
     """Runs of measured NEE equal, value for value, to the NEE whole days earlier
