@@ -53,6 +53,7 @@ import traceback
 import uuid
 import warnings
 from collections import Counter
+from concurrent.futures import CancelledError
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -132,6 +133,12 @@ _POLL_SECONDS = 1.0
 #: longer, so this is a note, not a failure.
 _NO_WORKER_NOTE_SECONDS = 60.0
 _CONNECT_TIMEOUT_SECONDS = 10
+#: How long the client waits for the workers to say which sites they run [s]. A worker's
+#: event loop answers within milliseconds; Dask itself warns of an event loop unresponsive
+#: for 3 s (``distributed.admin.tick.limit``, (m)). A worker that does not answer in this
+#: time is frozen (SIGSTOP, a paused virtual machine or container, a node swapping itself
+#: to a standstill) and must not stop the client's own loop (see :func:`_running_now`).
+_ASK_WORKERS_SECONDS = 10.0
 _RESERVED_KEYS = {*NETWORK_DATASETS.values(), FAILURES_FILE, NETWORK_SEAL}
 _SITE_COLUMNS = {
     "site_name": ("", "the site's [site] name"),
@@ -1089,12 +1096,20 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     _make_writable_out(out)          # before the cluster starts and any site is computed
     _sweep_leftovers(out, started)
     client, cluster = _client(scheduler, workers, len(network.sites))
+    # the client logs its lost scheduler's reconnection tries as ERROR with tracebacks;
+    # the sites it concerns are named by the batch summary (scheduler_lost_error)
+    client_log = logging.getLogger("distributed.client")
+    level = client_log.level
+    client_log.setLevel(logging.CRITICAL)
     try:
         outcomes = _run_tasks(client, network.sites, out, force, progress, limit * 60.0)
     finally:
-        client.close()
-        if cluster is not None:
-            cluster.close()
+        try:
+            client.close()
+            if cluster is not None:
+                cluster.close()
+        finally:
+            client_log.setLevel(level)
     try:
         table, failures = _write_network(outcomes, out)
     except OSError as error:          # a full disk after the sites were written
@@ -1340,12 +1355,41 @@ def _executing_keys(dask_worker) -> list:
     return list(dask_worker.active_threads.values())
 
 
-def _running_now(client) -> set:
-    """Keys of the tasks running on any worker; none where the workers cannot be asked."""
+def _running_now(client, timeout: float = _ASK_WORKERS_SECONDS) -> set:
+    """Keys of the tasks running on any worker now.
+
+    Parameters
+    ----------
+    client : dask.distributed.Client
+        The batch's client.
+    timeout : float, optional
+        Seconds to wait for the workers' answer (:data:`_ASK_WORKERS_SECONDS`).
+
+    Returns
+    -------
+    set of str
+        The keys each worker says it executes. Where the workers do not answer in
+        `timeout` (a frozen worker: ``Client.run`` waits for every worker and, without a
+        limit, waited without end, so neither the site time limit nor the no-worker
+        note could fire), the keys the scheduler has given to workers to process
+        (``Client.processing``): a task given to a frozen worker is charged its time. An
+        empty set where the scheduler cannot be asked either (the tasks' own failure
+        tells).
+
+    References
+    ----------
+    Dask.distributed documentation, ``Client.run`` (runs on every worker and gathers the
+    answers) and ``Client.processing`` (the tasks the scheduler has assigned to each
+    worker) (m); ``callback_timeout`` of the client's synchronous calls (m).
+    """
     try:
-        answers = client.run(_executing_keys, on_error="return")
-    except Exception:  # a lost worker or scheduler: the tasks' own failure tells
-        return set()
+        answers = client.run(_executing_keys, on_error="return", callback_timeout=timeout)
+    except Exception:  # a frozen worker (TimeoutError), a lost worker or scheduler
+        try:
+            assigned = client.processing()
+        except Exception:
+            return set()
+        return {str(key) for keys in (assigned or {}).values() for key in keys}
     return {key for keys in answers.values() if isinstance(keys, list) for key in keys}
 
 
@@ -1428,10 +1472,25 @@ def _run_tasks(client, sites, out: Path, force: bool, progress,
             done, _ = wait(list(pending), timeout=_POLL_SECONDS, return_when="FIRST_COMPLETED")
         except TimeoutError:
             done = set()
+        except CancelledError as error:
+            # the client lost its scheduler (Dask cancels every future it holds): what is
+            # still pending cannot come back; said per site, the finished sites kept
+            address = getattr(getattr(client, "scheduler", None), "address", "?")
+            for future in sorted(pending, key=lambda f: futures[f][0]):
+                position, key, config = futures[future]
+                end(future, _failure({"key": key, "config": str(config),
+                                      "directory": str(out / key)},
+                                     scheduler_lost_error(str(address), error)))
+            break
         for future in sorted(done, key=lambda f: futures[f][0]):
             position, key, config = futures[future]
             try:
                 outcome = future.result()
+            except CancelledError as error:  # cancelled by Dask: its scheduler was lost
+                address = getattr(getattr(client, "scheduler", None), "address", "?")
+                outcome = _failure({"key": key, "config": str(config),
+                                    "directory": str(out / key)},
+                                   scheduler_lost_error(str(address), error))
             except Exception as error:  # a lost worker fails its site only
                 outcome = _lost_site(_failure({"key": key, "config": str(config),
                                                "directory": str(out / key)}, error), error)
@@ -1483,6 +1542,49 @@ def _lost_site(outcome: SiteOutcome, error: BaseException) -> SiteOutcome:
                "Run the batch again; if memory ran out, with fewer --workers")
     return replace(outcome, error="WorkerLostError", message=message,
                    note=f"WorkerLostError: {message}", traceback="")
+
+
+class SchedulerLostError(FluxpartError):
+    """A batch's client lost its Dask scheduler before a site's outcome came back."""
+
+
+def scheduler_lost_error(address: str, error: BaseException) -> SchedulerLostError:
+    """The error of a site whose outcome was lost with the scheduler's connection.
+
+    Parameters
+    ----------
+    address : str
+        The scheduler's address, named in the message.
+    error : BaseException
+        Dask's error (``FuturesCancelledError``, reason ``scheduler-connection-lost``);
+        its text is a traceback's, so only its kind is kept.
+
+    Returns
+    -------
+    SchedulerLostError
+        Names the scheduler, what the site's folder holds and the fix.
+
+    Notes
+    -----
+    When the client's connection to the scheduler ends (the scheduler process stopped
+    or was killed, its node rebooted, the network between failed), Dask cancels every
+    future the client holds and the client's ``wait`` raises ``CancelledError``; the
+    batch ended in that traceback (exit 1) and wrote no network table. A worker may
+    still finish a site it was computing: the site's folder is written whole or not at
+    all (:func:`fluxpart.resultdir.swapped_in`), so it holds the earlier result or a
+    complete new one, and a rerun skips it where it is up to date.
+
+    References
+    ----------
+    Dask.distributed documentation, "Managing Computation" (futures of a client are
+    cancelled when it loses its scheduler) (m).
+    """
+    return SchedulerLostError(
+        f"the connection to the Dask scheduler at {address} was lost before this site's "
+        f"outcome came back ({type(error).__name__}: the scheduler stopped, or the network "
+        "to it failed); its folder keeps what an earlier run left or holds a complete new "
+        "result (never half-written). Start the scheduler again and rerun the batch: sites "
+        "up to date are skipped")
 
 
 class SiteTimeLimitError(FluxpartError):

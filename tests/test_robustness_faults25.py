@@ -1,0 +1,132 @@
+"""Result safety, portable verify and batch faults (round faults25).
+
+Contracts (README "Command line", DESIGN §7): a user error is one ``error:`` line, exit
+2, nothing half-written or left behind; a batch site that fails is named alone, the
+others and the network tables go on (exit 1). External facts used, each named beside its
+check: SIGSTOP cannot be caught or ignored and holds a process until SIGCONT (POSIX
+``signal.h`` (m)); Dask cancels every future of a client that loses its scheduler
+(Dask.distributed documentation, "Managing Computation" (m)); ``Client.run`` gathers an
+answer from every worker (Dask.distributed API documentation (m)). Invented Quillmoor
+bundles only, for known-truth recovery.
+"""
+
+import os
+import signal
+import subprocess
+import sys
+import threading
+import time
+from pathlib import Path
+
+import pytest
+from bundles import make_bundle
+
+distributed = pytest.importorskip("distributed")
+
+from fluxpart import batch  # noqa: E402
+
+REPOSITORY = Path(__file__).resolve().parent.parent
+
+
+def _env() -> dict:
+    return {**os.environ, "PYTHONPATH": os.pathsep.join(
+        [str(REPOSITORY), *filter(None, [os.environ.get("PYTHONPATH")])])}
+
+
+# --------------------------------------------------------------------------- a lost scheduler
+
+def test_a_scheduler_lost_mid_batch_fails_the_waiting_sites_by_name(tmp_path):
+    """The scheduler of ``--scheduler`` killed while sites wait on it (a scheduler's node
+    rebooted, the network to it failed): Dask cancels the client's futures (Dask
+    documentation (m)), and the batch ended in a ``FuturesCancelledError`` traceback
+    (exit 1) after the client's ERROR log, no network table written. Now each waiting
+    site fails as ``SchedulerLostError`` naming the scheduler and the rerun, and the
+    network tables and ``failures.parquet`` are written (known truth: no worker ever
+    joins, so no site can have been computed)."""
+    configs = [make_bundle(tmp_path / name, name=f"{name}.toml") for name in ("fen", "moor")]
+    sites = tmp_path / "SITES.toml"
+    sites.write_text('[batch]\nsites = ["fen/fen.toml", "moor/moor.toml"]\nout = "net"\n')
+    scheduler_file = tmp_path / "scheduler.json"
+    scheduler = subprocess.Popen(
+        [sys.executable, "-m", "distributed.cli.dask_scheduler", "--host", "127.0.0.1",
+         "--port", "0", "--no-dashboard", "--dashboard-address", "127.0.0.1:0",
+         "--scheduler-file", str(scheduler_file)], env=_env(), cwd=tmp_path,
+        stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    try:
+        deadline = time.monotonic() + 60
+        while not scheduler_file.exists() and time.monotonic() < deadline:
+            time.sleep(0.2)
+        reports: list = []
+        with distributed.Client(scheduler_file=str(scheduler_file), timeout=30) as probe:
+            address = probe.scheduler.address
+            running = threading.Thread(target=lambda: reports.append(
+                batch.run_batch(sites, scheduler=address)), daemon=True)
+            running.start()
+            while (probe.run_on_scheduler(lambda dask_scheduler: len(dask_scheduler.tasks))
+                   < 2 and time.monotonic() < deadline + 60):
+                time.sleep(0.2)             # both sites queued on the scheduler
+            scheduler.kill()                # SIGKILL, as a node's loss
+        running.join(120)
+        assert not running.is_alive()
+        report = reports[0]
+    finally:
+        scheduler.kill()
+        scheduler.wait(timeout=30)
+    assert len(configs) == 2 and report.failed == 2 and report.exit_code == 1
+    for outcome in report.outcomes:
+        assert outcome.error == "SchedulerLostError", outcome
+        assert address in outcome.message and "rerun" in outcome.message
+        assert not (report.out / outcome.key).exists()     # nothing computed, nothing made
+    assert (report.out / "failures.parquet").is_file()
+    assert (report.out / "network.json").is_file()
+
+
+def test_the_scheduler_lost_message_names_the_folder_state():
+    """The message names the scheduler, the folder (earlier or whole new result: the
+    swap is atomic, rename(2) (m)) and the fix; the error's traceback text is not kept."""
+    error = batch.scheduler_lost_error("tcp://10.0.0.5:8786", RuntimeError("long\ntrace"))
+    text = str(error)
+    assert "tcp://10.0.0.5:8786" in text and "never half-written" in text
+    assert "\n" not in text and "long" not in text
+
+
+# --------------------------------------------------------------------------- a frozen worker
+
+def _sleep_task(seconds):
+    time.sleep(seconds)
+    return seconds
+
+
+def test_a_frozen_worker_does_not_stop_the_clients_look_at_running_sites():
+    """A worker held by SIGSTOP (a paused container or virtual machine, a node swapping
+    to a standstill; SIGSTOP cannot be caught, POSIX (m)) never answers ``Client.run``,
+    which gathers every worker's answer (Dask documentation (m)): the batch's poll
+    waited there without end, so neither ``--site-time-limit`` nor the no-worker note
+    could fire (measured: a 0.2 min limit, still waiting after 6.6 min, stopped by
+    ``timeout``). Now the question has a time limit and the scheduler's assignment
+    answers instead: the frozen worker's site counts as running."""
+    with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=True,
+                                  host="127.0.0.1", dashboard_address=None,
+                                  scheduler_kwargs={"dashboard_address": "127.0.0.1:0"}
+                                  ) as cluster, \
+            distributed.Client(cluster) as client:
+        future = client.submit(_sleep_task, 120, key="fluxpart-site-frozen-0")
+        deadline = time.monotonic() + 60
+        while (future.key not in batch._running_now(client)
+               and time.monotonic() < deadline):
+            time.sleep(0.2)
+        pid = next(iter(client.run(os.getpid).values()))
+        os.kill(pid, signal.SIGSTOP)
+        try:
+            answer: list = []
+            asking = threading.Thread(
+                target=lambda: answer.append(batch._running_now(client, 2.0)), daemon=True)
+            started = time.monotonic()
+            asking.start()
+            asking.join(30)
+            assert not asking.is_alive(), "the look at the running sites hangs"
+            assert time.monotonic() - started < 20
+            assert answer == [{future.key}]
+        finally:
+            os.kill(pid, signal.SIGCONT)
+            future.cancel()
