@@ -140,6 +140,11 @@ _CONNECT_TIMEOUT_SECONDS = 10
 #: to a standstill) and must not stop the client's own loop (see :func:`_running_now`).
 _ASK_WORKERS_SECONDS = 10.0
 _RESERVED_KEYS = {*NETWORK_DATASETS.values(), FAILURES_FILE, NETWORK_SEAL}
+#: Longest site key [bytes; keys are ASCII]. A name may hold 255 bytes on ext4, XFS,
+#: NTFS and APFS (NAME_MAX, common practice (m)); a site folder is written through
+#: ``.KEY.staging-XXXXXXXX`` beside it (18 bytes more) and may get a ``-N`` suffix where
+#: keys clash, so 200 leaves room for both.
+_KEY_LIMIT = 200
 _SITE_COLUMNS = {
     "site_name": ("", "the site's [site] name"),
     "latitude": ("degree_north", "latitude of the tower, north positive"),
@@ -408,7 +413,14 @@ def _is_network_file(path) -> bool:
 
 
 def _clean_key(text: str) -> str:
-    return re.sub(r"[^A-Za-z0-9._-]+", "_", text).strip("._") or "site"
+    """A folder name of ASCII letters, digits, ``._-`` from `text`, at most
+    :data:`_KEY_LIMIT` bytes: a longer one is cut and ends in 8 hex digits of the SHA-256
+    of the whole, so two long names that share their start stay apart."""
+    key = re.sub(r"[^A-Za-z0-9._-]+", "_", text).strip("._") or "site"
+    if len(key) <= _KEY_LIMIT:
+        return key
+    digest = hashlib.sha256(text.encode("utf-8", "surrogateescape")).hexdigest()[:8]
+    return f"{key[:_KEY_LIMIT - 9].rstrip('._')}-{digest}"
 
 
 def _site_keys(configs: list[Path]) -> list[str]:

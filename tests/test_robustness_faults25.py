@@ -130,3 +130,23 @@ def test_a_frozen_worker_does_not_stop_the_clients_look_at_running_sites():
         finally:
             os.kill(pid, signal.SIGCONT)
             future.cancel()
+
+
+# --------------------------------------------------------------------------- long site names
+
+def test_a_site_config_of_a_long_name_gets_a_folder_that_fits(tmp_path):
+    """A site config named with 240 bytes (legal: NAME_MAX is 255 on ext4, NTFS, APFS,
+    common practice (m)) gave a site key of 240 bytes; its folder's staging name
+    ``.KEY.staging-XXXXXXXX`` (18 bytes more) does not fit, so the site was computed
+    and then failed with "choose a name of at most 237 bytes; choose another --out",
+    neither of which the user can do for a key taken from a file name. Keys are now at
+    most 200 bytes, cut ones ending in 8 hex digits of the name's SHA-256 (hashlib)."""
+    import hashlib
+
+    long_a, long_b = "k" * 240, "k" * 239 + "x"
+    keys = batch._site_keys([tmp_path / f"{long_a}.toml", tmp_path / f"{long_b}.toml",
+                             tmp_path / "fen.toml"])
+    assert [len(k) for k in keys] == [200, 200, 3] and len(set(keys)) == 3
+    assert keys[0].endswith(hashlib.sha256(long_a.encode()).hexdigest()[:8])
+    assert keys[2] == "fen"                             # short keys as before
+    assert all(len(f".{k}.staging-XXXXXXXX") <= 255 for k in keys)
