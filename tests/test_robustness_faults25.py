@@ -24,6 +24,7 @@ from bundles import make_bundle
 distributed = pytest.importorskip("distributed")
 
 from fluxpart import batch  # noqa: E402
+from fluxpart.cli import main  # noqa: E402
 
 REPOSITORY = Path(__file__).resolve().parent.parent
 
@@ -150,3 +151,29 @@ def test_a_site_config_of_a_long_name_gets_a_folder_that_fits(tmp_path):
     assert keys[0].endswith(hashlib.sha256(long_a.encode()).hexdigest()[:8])
     assert keys[2] == "fen"                             # short keys as before
     assert all(len(f".{k}.staging-XXXXXXXX") <= 255 for k in keys)
+
+
+# --------------------------------------------------------------------------- verify's umask
+
+def test_verify_under_a_umask_taking_the_owners_access_is_named_before_computing(
+        bundle, capsys, monkeypatch):
+    """Under ``umask 777`` verify computed the whole rerun, then failed writing its
+    scratch folder, its line ending "free space in the temporary folder ... or raise
+    the file-size limit", neither of which helps. The mode of what is written is the
+    mode asked for less the umask's bits (POSIX umask(2) (m)): the umask is now named
+    before anything is computed, one line, exit 2 (as run, export and report do)."""
+    from fluxpart import verify as verify_module
+
+    def no_rerun(*args, **kwargs):
+        raise AssertionError("the rerun was computed")
+
+    monkeypatch.setattr(verify_module, "_recompute", no_rerun)
+    old = os.umask(0o777)
+    try:
+        code = main(["verify", str(bundle / "out")])
+    finally:
+        os.umask(old)
+    assert code == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: verify: "), err
+    assert "umask is 0777" in err[0] and "free space" not in err[0]
