@@ -177,3 +177,27 @@ def test_verify_under_a_umask_taking_the_owners_access_is_named_before_computing
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("error: verify: "), err
     assert "umask is 0777" in err[0] and "free space" not in err[0]
+
+
+# --------------------------------------------------------------------------- linked config
+
+def test_a_linked_site_config_names_the_input_beside_its_target(tmp_path, capsys):
+    """A site config shared by a symbolic link (``site/site.toml -> ../shared/site.toml``)
+    reads its relative ``[input] path`` from the link's folder (a relative name is
+    resolved by the reader against the path as given, POSIX path resolution (m)); `run`
+    said only "input file 'site/tower.csv' does not exist" beside a config whose target
+    has ``tower.csv`` next to it. Now the line names the link, its target and the file
+    found there, exit 2, nothing written; a linked config whose input is beside the link
+    runs as before."""
+    shared = make_bundle(tmp_path / "shared")
+    (tmp_path / "site").mkdir()
+    link = tmp_path / "site" / "site.toml"
+    link.symlink_to(Path("..") / "shared" / shared.name)
+    out = tmp_path / "site" / "out"
+    assert main(["run", str(link), "--out", str(out), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: [input] path: "), err
+    assert "symbolic link" in err[0] and str(tmp_path / "shared" / "tower.csv") in err[0]
+    assert not out.exists()
+    (tmp_path / "site" / "tower.csv").symlink_to(tmp_path / "shared" / "tower.csv")
+    assert main(["run", str(link), "--out", str(out), "--quiet"]) == 0
