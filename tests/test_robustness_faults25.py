@@ -201,3 +201,30 @@ def test_a_linked_site_config_names_the_input_beside_its_target(tmp_path, capsys
     assert not out.exists()
     (tmp_path / "site" / "tower.csv").symlink_to(tmp_path / "shared" / "tower.csv")
     assert main(["run", str(link), "--out", str(out), "--quiet"]) == 0
+
+
+# --------------------------------------------------------------------------- report
+
+def test_a_result_moved_while_its_report_is_drawn_is_one_line(copy, capsys, monkeypatch):
+    """``mv out moved`` while ``report out`` drew its figures: the page read each table's
+    units again from the folder's files and ended in a FileNotFoundError traceback (exit
+    1); moved later, the report was written into a new ``out/`` holding only
+    ``report/``, a page beside no result. A moved folder keeps its inode, a new one at
+    the old path has another (POSIX rename(2) (m)): now one error line, exit 2, nothing
+    made at the old path, the moved result untouched."""
+    from fluxpart import report as report_module
+
+    original = report_module.draw_figures
+
+    def drawn_while_moved(written, tick):
+        os.rename(copy / "out", copy / "moved")
+        return original(written, tick)
+
+    monkeypatch.setattr(report_module, "draw_figures", drawn_while_moved)
+    before = sorted(os.listdir(copy / "out"))
+    code = main(["report", str(copy / "out")])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert code == 2
+    assert len(err) == 1 and err[0].startswith("error: ") and "moved" in err[0], err
+    assert not (copy / "out").exists()
+    assert sorted(os.listdir(copy / "moved")) == before
