@@ -80,7 +80,7 @@ from .network_layout import (  # noqa: F401 - also this module's names
     NETWORK_SEAL,
     enclosing_network_dataset,
 )
-from .resultdir import check_folder, folder_lock
+from .resultdir import check_folder, clean_leftovers, folder_lock, interrupted_writes
 from .schema import TIME_CONVENTION, units_for_table
 from .store import (
     PANDAS_ATTRS_KEY,
@@ -545,6 +545,7 @@ def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome
     try:
         reason = "forced" if force else _stale_reason(config, directory)
         if reason is None:
+            tidy_skipped(directory)
             annual, site, notes = _annual_from(directory)
             return SiteOutcome(status="skipped", note="up to date", site=site, annual=annual,
                                warnings=notes, **common)
@@ -559,6 +560,46 @@ def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome
                            warnings=notes, **common)
     except Exception as error:  # isolate every site's failure
         return _failure(common, error)
+
+
+def tidy_skipped(directory) -> list[str]:
+    """Remove what a killed writer left beside a site folder that is up to date.
+
+    Parameters
+    ----------
+    directory : str or path-like
+        The site's result folder, found up to date (:func:`is_up_to_date`).
+
+    Returns
+    -------
+    list of str
+        What was removed (:func:`fluxpart.resultdir.clean_leftovers`); empty where
+        nothing was left, or where a writer holds the folder's lock now (its staging
+        folder is its own).
+
+    Notes
+    -----
+    A batch killed while a worker wrote a site (``kill -9``, a node lost) leaves the
+    site's ``.KEY.staging-*`` folder beside it, a whole copy of a result. A rerun that
+    found the site up to date skipped it without a word and left the copy for good;
+    every verify of the site then said a run into it "is running now or was stopped"
+    (only a run that rewrote the site removed it). A staging folder is made only under
+    the folder's lock, so with the lock taken here (without waiting) none belongs to a
+    writer running now.
+
+    References
+    ----------
+    flock(2): an advisory lock is released when its holder's process ends, also by
+    SIGKILL (m).
+    """
+    directory = Path(directory)
+    if not interrupted_writes(directory):
+        return []
+    try:
+        with folder_lock(directory, timeout=0, remove=True):
+            return clean_leftovers(directory)
+    except (OutputError, OSError):
+        return []                # held by a writer running now, or not ours to remove
 
 
 def _failure(common: dict, error: BaseException) -> SiteOutcome:
