@@ -53,6 +53,7 @@ import traceback
 import uuid
 import warnings
 from collections import Counter
+from concurrent.futures import CancelledError
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -79,7 +80,7 @@ from .network_layout import (  # noqa: F401 - also this module's names
     NETWORK_SEAL,
     enclosing_network_dataset,
 )
-from .resultdir import check_folder, folder_lock
+from .resultdir import check_folder, clean_leftovers, folder_lock, interrupted_writes
 from .schema import TIME_CONVENTION, units_for_table
 from .store import (
     PANDAS_ATTRS_KEY,
@@ -132,7 +133,18 @@ _POLL_SECONDS = 1.0
 #: longer, so this is a note, not a failure.
 _NO_WORKER_NOTE_SECONDS = 60.0
 _CONNECT_TIMEOUT_SECONDS = 10
+#: How long the client waits for the workers to say which sites they run [s]. A worker's
+#: event loop answers within milliseconds; Dask itself warns of an event loop unresponsive
+#: for 3 s (``distributed.admin.tick.limit``, (m)). A worker that does not answer in this
+#: time is frozen (SIGSTOP, a paused virtual machine or container, a node swapping itself
+#: to a standstill) and must not stop the client's own loop (see :func:`_running_now`).
+_ASK_WORKERS_SECONDS = 10.0
 _RESERVED_KEYS = {*NETWORK_DATASETS.values(), FAILURES_FILE, NETWORK_SEAL}
+#: Longest site key [bytes; keys are ASCII]. A name may hold 255 bytes on ext4, XFS,
+#: NTFS and APFS (NAME_MAX, common practice (m)); a site folder is written through
+#: ``.KEY.staging-XXXXXXXX`` beside it (18 bytes more) and may get a ``-N`` suffix where
+#: keys clash, so 200 leaves room for both.
+_KEY_LIMIT = 200
 _SITE_COLUMNS = {
     "site_name": ("", "the site's [site] name"),
     "latitude": ("degree_north", "latitude of the tower, north positive"),
@@ -401,7 +413,14 @@ def _is_network_file(path) -> bool:
 
 
 def _clean_key(text: str) -> str:
-    return re.sub(r"[^A-Za-z0-9._-]+", "_", text).strip("._") or "site"
+    """A folder name of ASCII letters, digits, ``._-`` from `text`, at most
+    :data:`_KEY_LIMIT` bytes: a longer one is cut and ends in 8 hex digits of the SHA-256
+    of the whole, so two long names that share their start stay apart."""
+    key = re.sub(r"[^A-Za-z0-9._-]+", "_", text).strip("._") or "site"
+    if len(key) <= _KEY_LIMIT:
+        return key
+    digest = hashlib.sha256(text.encode("utf-8", "surrogateescape")).hexdigest()[:8]
+    return f"{key[:_KEY_LIMIT - 9].rstrip('._')}-{digest}"
 
 
 def _site_keys(configs: list[Path]) -> list[str]:
@@ -526,6 +545,7 @@ def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome
     try:
         reason = "forced" if force else _stale_reason(config, directory)
         if reason is None:
+            tidy_skipped(directory)
             annual, site, notes = _annual_from(directory)
             return SiteOutcome(status="skipped", note="up to date", site=site, annual=annual,
                                warnings=notes, **common)
@@ -540,6 +560,46 @@ def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome
                            warnings=notes, **common)
     except Exception as error:  # isolate every site's failure
         return _failure(common, error)
+
+
+def tidy_skipped(directory) -> list[str]:
+    """Remove what a killed writer left beside a site folder that is up to date.
+
+    Parameters
+    ----------
+    directory : str or path-like
+        The site's result folder, found up to date (:func:`is_up_to_date`).
+
+    Returns
+    -------
+    list of str
+        What was removed (:func:`fluxpart.resultdir.clean_leftovers`); empty where
+        nothing was left, or where a writer holds the folder's lock now (its staging
+        folder is its own).
+
+    Notes
+    -----
+    A batch killed while a worker wrote a site (``kill -9``, a node lost) leaves the
+    site's ``.KEY.staging-*`` folder beside it, a whole copy of a result. A rerun that
+    found the site up to date skipped it without a word and left the copy for good;
+    every verify of the site then said a run into it "is running now or was stopped"
+    (only a run that rewrote the site removed it). A staging folder is made only under
+    the folder's lock, so with the lock taken here (without waiting) none belongs to a
+    writer running now.
+
+    References
+    ----------
+    flock(2): an advisory lock is released when its holder's process ends, also by
+    SIGKILL (m).
+    """
+    directory = Path(directory)
+    if not interrupted_writes(directory):
+        return []
+    try:
+        with folder_lock(directory, timeout=0, remove=True):
+            return clean_leftovers(directory)
+    except (OutputError, OSError):
+        return []                # held by a writer running now, or not ours to remove
 
 
 def _failure(common: dict, error: BaseException) -> SiteOutcome:
@@ -1089,12 +1149,20 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     _make_writable_out(out)          # before the cluster starts and any site is computed
     _sweep_leftovers(out, started)
     client, cluster = _client(scheduler, workers, len(network.sites))
+    # the client logs its lost scheduler's reconnection tries as ERROR with tracebacks;
+    # the sites it concerns are named by the batch summary (scheduler_lost_error)
+    client_log = logging.getLogger("distributed.client")
+    level = client_log.level
+    client_log.setLevel(logging.CRITICAL)
     try:
         outcomes = _run_tasks(client, network.sites, out, force, progress, limit * 60.0)
     finally:
-        client.close()
-        if cluster is not None:
-            cluster.close()
+        try:
+            client.close()
+            if cluster is not None:
+                cluster.close()
+        finally:
+            client_log.setLevel(level)
     try:
         table, failures = _write_network(outcomes, out)
     except OSError as error:          # a full disk after the sites were written
@@ -1340,12 +1408,41 @@ def _executing_keys(dask_worker) -> list:
     return list(dask_worker.active_threads.values())
 
 
-def _running_now(client) -> set:
-    """Keys of the tasks running on any worker; none where the workers cannot be asked."""
+def _running_now(client, timeout: float = _ASK_WORKERS_SECONDS) -> set:
+    """Keys of the tasks running on any worker now.
+
+    Parameters
+    ----------
+    client : dask.distributed.Client
+        The batch's client.
+    timeout : float, optional
+        Seconds to wait for the workers' answer (:data:`_ASK_WORKERS_SECONDS`).
+
+    Returns
+    -------
+    set of str
+        The keys each worker says it executes. Where the workers do not answer in
+        `timeout` (a frozen worker: ``Client.run`` waits for every worker and, without a
+        limit, waited without end, so neither the site time limit nor the no-worker
+        note could fire), the keys the scheduler has given to workers to process
+        (``Client.processing``): a task given to a frozen worker is charged its time. An
+        empty set where the scheduler cannot be asked either (the tasks' own failure
+        tells).
+
+    References
+    ----------
+    Dask.distributed documentation, ``Client.run`` (runs on every worker and gathers the
+    answers) and ``Client.processing`` (the tasks the scheduler has assigned to each
+    worker) (m); ``callback_timeout`` of the client's synchronous calls (m).
+    """
     try:
-        answers = client.run(_executing_keys, on_error="return")
-    except Exception:  # a lost worker or scheduler: the tasks' own failure tells
-        return set()
+        answers = client.run(_executing_keys, on_error="return", callback_timeout=timeout)
+    except Exception:  # a frozen worker (TimeoutError), a lost worker or scheduler
+        try:
+            assigned = client.processing()
+        except Exception:
+            return set()
+        return {str(key) for keys in (assigned or {}).values() for key in keys}
     return {key for keys in answers.values() if isinstance(keys, list) for key in keys}
 
 
@@ -1428,10 +1525,25 @@ def _run_tasks(client, sites, out: Path, force: bool, progress,
             done, _ = wait(list(pending), timeout=_POLL_SECONDS, return_when="FIRST_COMPLETED")
         except TimeoutError:
             done = set()
+        except CancelledError as error:
+            # the client lost its scheduler (Dask cancels every future it holds): what is
+            # still pending cannot come back; said per site, the finished sites kept
+            address = getattr(getattr(client, "scheduler", None), "address", "?")
+            for future in sorted(pending, key=lambda f: futures[f][0]):
+                position, key, config = futures[future]
+                end(future, _failure({"key": key, "config": str(config),
+                                      "directory": str(out / key)},
+                                     scheduler_lost_error(str(address), error)))
+            break
         for future in sorted(done, key=lambda f: futures[f][0]):
             position, key, config = futures[future]
             try:
                 outcome = future.result()
+            except CancelledError as error:  # cancelled by Dask: its scheduler was lost
+                address = getattr(getattr(client, "scheduler", None), "address", "?")
+                outcome = _failure({"key": key, "config": str(config),
+                                    "directory": str(out / key)},
+                                   scheduler_lost_error(str(address), error))
             except Exception as error:  # a lost worker fails its site only
                 outcome = _lost_site(_failure({"key": key, "config": str(config),
                                                "directory": str(out / key)}, error), error)
@@ -1483,6 +1595,49 @@ def _lost_site(outcome: SiteOutcome, error: BaseException) -> SiteOutcome:
                "Run the batch again; if memory ran out, with fewer --workers")
     return replace(outcome, error="WorkerLostError", message=message,
                    note=f"WorkerLostError: {message}", traceback="")
+
+
+class SchedulerLostError(FluxpartError):
+    """A batch's client lost its Dask scheduler before a site's outcome came back."""
+
+
+def scheduler_lost_error(address: str, error: BaseException) -> SchedulerLostError:
+    """The error of a site whose outcome was lost with the scheduler's connection.
+
+    Parameters
+    ----------
+    address : str
+        The scheduler's address, named in the message.
+    error : BaseException
+        Dask's error (``FuturesCancelledError``, reason ``scheduler-connection-lost``);
+        its text is a traceback's, so only its kind is kept.
+
+    Returns
+    -------
+    SchedulerLostError
+        Names the scheduler, what the site's folder holds and the fix.
+
+    Notes
+    -----
+    When the client's connection to the scheduler ends (the scheduler process stopped
+    or was killed, its node rebooted, the network between failed), Dask cancels every
+    future the client holds and the client's ``wait`` raises ``CancelledError``; the
+    batch ended in that traceback (exit 1) and wrote no network table. A worker may
+    still finish a site it was computing: the site's folder is written whole or not at
+    all (:func:`fluxpart.resultdir.swapped_in`), so it holds the earlier result or a
+    complete new one, and a rerun skips it where it is up to date.
+
+    References
+    ----------
+    Dask.distributed documentation, "Managing Computation" (futures of a client are
+    cancelled when it loses its scheduler) (m).
+    """
+    return SchedulerLostError(
+        f"the connection to the Dask scheduler at {address} was lost before this site's "
+        f"outcome came back ({type(error).__name__}: the scheduler stopped, or the network "
+        "to it failed); its folder keeps what an earlier run left or holds a complete new "
+        "result (never half-written). Start the scheduler again and rerun the batch: sites "
+        "up to date are skipped")
 
 
 class SiteTimeLimitError(FluxpartError):

@@ -137,11 +137,15 @@ class Written:
         Every table the manifest lists, by its manifest name.
     config : dict
         The ``config`` mapping of the manifest (settings of the run).
+    fields : dict of str to dict, optional
+        Per table name: column -> (unit as displayed, description), as the tables were
+        read; empty where the report reads them from the files.
     """
 
     manifest: dict
     tables: dict
     config: dict = field(default_factory=dict)
+    fields: dict = field(default_factory=dict)
 
     def table(self, name) -> pd.DataFrame:
         return self.tables.get(name, pd.DataFrame())

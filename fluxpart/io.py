@@ -581,6 +581,7 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
 
     if input_paths is None:
         input_paths = _resolve_paths(input_table["path"], path.parent)
+        _beside_link_target(path, input_paths)
     else:
         input_paths = tuple(Path(p) for p in input_paths)
     time_column = _check_time_column(input_table["time_column"])
@@ -1629,6 +1630,54 @@ def _file_sha256(path: Path) -> str:
     except OSError as error:
         raise InputFileError(_cannot_read(path, error)) from None
     return digest.hexdigest()
+
+
+def _beside_link_target(config: Path, input_paths) -> None:
+    """Name a linked site config's relative input that lies beside the link's target.
+
+    Parameters
+    ----------
+    config : Path
+        The site config as given.
+    input_paths : sequence of Path
+        Its ``[input] path`` files, resolved relative to the folder of `config`.
+
+    Raises
+    ------
+    InputFileError
+        Where `config` is a symbolic link (a shared config linked into each site's
+        folder), an input file is missing beside the link, and the same relative name
+        exists beside the link's target: the run said only "does not exist" of a file
+        the user can see beside the config they wrote.
+
+    References
+    ----------
+    POSIX ``symlink(7)`` / path resolution: a relative name in a file's content is
+    resolved by the program reading it, here against the folder of the path as given
+    (the link's), not the target's (m).
+    """
+    try:
+        if not config.is_symlink():
+            return
+        target = config.resolve().parent
+    except (OSError, RuntimeError):
+        return
+    for given in input_paths:
+        try:
+            if given.exists():
+                continue
+            relative = given.relative_to(config.parent)
+            there = target / relative
+            if not there.is_file():
+                continue
+        except (OSError, ValueError):
+            continue
+        raise InputFileError(
+            f"[input] path: input file {str(given)!r} does not exist; the site config "
+            f"{str(config)!r} is a symbolic link to {str(config.resolve())!r}, and relative "
+            f"paths in it are read from the link's folder, not the target's: {str(there)!r} "
+            "is there. Give that path in full in [input] path, or put a link to the input "
+            "beside the site config's link too")
 
 
 def _require_input_file(path: Path) -> None:

@@ -59,6 +59,7 @@ from .manifest import CAUTION, shown_name
 from .resultdir import (
     DEFAULT_LOCK_TIMEOUT,
     clean_leftovers,
+    folder_identity,
     folder_lock,
     make_staging,
     read_folder,
@@ -150,13 +151,23 @@ def read_written(directory) -> Written:
     """
     directory = Path(directory)
     manifest, tables = read_folder(directory)
-    for table in tables.values():
-        table.attrs = {}  # units are read from the field metadata; attrs slow every copy
+    fields = {}
+    for name, table in tables.items():
+        # the units and descriptions of the very tables read: the page read them again
+        # from the folder's files, so a folder moved or replaced meanwhile (a run swapping
+        # in its result) ended the report in a FileNotFoundError traceback
+        units = table.attrs.get("units") or {}
+        descriptions = table.attrs.get("descriptions") or {}
+        fields[name] = {column: (display_unit(str(units.get(column, ""))),
+                                 str(descriptions.get(column, "")))
+                        for column in {**units, **descriptions}}
+        table.attrs = {}  # attrs slow every copy
     for name in ("timeseries", "annual"):
         if name not in tables:
             raise InputFileError(f"the manifest of {str(directory)!r} lists no {name!r} table; "
                                  "the report needs it")
-    return Written(manifest=manifest, tables=tables, config=dict(manifest.get("config", {})))
+    return Written(manifest=manifest, tables=tables, config=dict(manifest.get("config", {})),
+                   fields=fields)
 
 
 # ------------------------------------------------------------------------------ summary
@@ -967,6 +978,8 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
     entries = manifest.get("tables", {})
 
     def metadata(name):
+        if name in written.fields:
+            return written.fields[name]
         return _field_metadata(directory / entries[name]["file"]) if name in entries else {}
 
     annual = written.annual
@@ -1132,6 +1145,7 @@ def build_report(directory, out=None, *, progress=None) -> Path:
     except OSError:
         pass                        # a read-only place: the write below says so
     written = read_written(directory)
+    read_from = folder_identity(directory)
     interval = interval_minutes(written.timeseries.index)
     tick = progress if progress is not None else (lambda: None)
     figures = draw_figures(written, tick)
@@ -1141,6 +1155,7 @@ def build_report(directory, out=None, *, progress=None) -> Path:
     # every byte is ready before the first file is written, and the files go into a staging
     # folder beside `out` that replaces it whole: a failure leaves the earlier report (or
     # none), never new figures beside an old page
+    _require_same_folder(directory, read_from, out)
     try:
         out.parent.mkdir(parents=True, exist_ok=True)
         staging = make_staging(out)
@@ -1159,6 +1174,43 @@ def build_report(directory, out=None, *, progress=None) -> Path:
                           f"unchanged: {remedy}") from None
     tick()
     return out / "report.html"
+
+
+def _require_same_folder(directory: Path, read_from, out: Path) -> None:
+    """Refuse to write a report inside a result folder moved or replaced since it was read.
+
+    Parameters
+    ----------
+    directory : Path
+        The result folder as given.
+    read_from : tuple or None
+        Its (device, inode) right after its tables were read
+        (:func:`fluxpart.resultdir.folder_identity`).
+    out : Path
+        The report folder.
+
+    Raises
+    ------
+    InputFileError
+        Where `out` lies in `directory` and the folder there is gone or another one:
+        the result was moved (``mv``), renamed or deleted while the figures were drawn,
+        and the report was written into a new, otherwise empty folder of the old name
+        (or beside another result), a page describing a result that is not there.
+
+    References
+    ----------
+    POSIX ``rename(2)``: a folder moved keeps its inode, a new one at the old path has
+    another (m).
+    """
+    try:
+        inside = out.absolute().is_relative_to(directory.absolute())
+    except (OSError, ValueError):
+        return
+    if inside and folder_identity(directory) != read_from:
+        raise InputFileError(
+            f"the result folder {str(directory)!r} was moved, renamed, removed or replaced "
+            "while its report was drawn; nothing written: draw the report again from "
+            "where the result is now")
 
 
 def _check_report_folder(out: Path) -> None:

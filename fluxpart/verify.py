@@ -90,7 +90,7 @@ from .manifest import (
     without_paths,
 )
 from .resultdir import interrupted_writes
-from .store import file_sha256, read_table
+from .store import file_sha256, read_table, require_owner_access
 
 __all__ = ["NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference", "VerifyReport",
            "command_verify", "compare_tables", "field_differences", "verify"]
@@ -1480,6 +1480,15 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                      "covered by the manifest's hashes, so they are not verified; redraw them "
                      "from the verified tables with `fluxpart report` rather than trusting a "
                      "received page")
+    try:
+        # before the rerun is computed: its scratch folder would take this umask, and the
+        # whole computation ended in "could not be written ... free space in the
+        # temporary folder", a fix that does not help
+        require_owner_access()
+    except OutputError as error:
+        raise OutputError(f"verify: {error}; {str(directory)!r} is unchanged and not judged "
+                          "(its rerun is written to a scratch folder, which takes the umask)"
+                          ) from None
     remove_dead_scratch()
     same_values: dict = {}      # cause -> tables whose values and metadata equal the rerun's
     with tempfile.TemporaryDirectory(prefix=f"{_SCRATCH_PREFIX}{os.getpid()}-") as scratch:
