@@ -11,6 +11,7 @@ import fluxpart
 ROOT = Path(fluxpart.__file__).parent
 #: modules that compute a method or stage; a writer of results needs none of them
 METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "column_faults",
+                  "driver_mixture",
                   "gapfill", "method_failure", "partition", "preflight", "responses",
                   "scenarios", "screening", "solar", "storage_check", "uncertainty",
                   "unit_checks", "ustar", "ustar_seasonal", "demo"}
