@@ -63,7 +63,7 @@ from statistics import NormalDist
 import numpy as np
 import pandas as pd
 
-from . import gap_sides
+from . import driver_mixture, gap_sides
 from ._validate import as_float
 from .constants import CARBON_MOLAR_MASS, CO2_MOLAR_MASS
 from .errors import (
@@ -2072,7 +2072,12 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         The daytime records' evidence on the temperature
         (:func:`fluxpart.partition.temperature_choice.daytime_evidence`); where it
         contradicts the night records, the driver weight is 1/2
-        (:func:`combined_driver_weight`, with `day_evidence_critical`).
+        (:func:`combined_driver_weight`, with `day_evidence_critical`). The weight is
+        at least the square of the other temperature's share in the night's best
+        mixture of the two fits (:func:`fluxpart.driver_mixture.mixture_share`), so
+        that the part √w · |Δ| is at least that share of the difference Δ: where soil
+        and canopy respire on different temperatures, the BIC weight goes to 0 for a
+        model that is still wrong (since 0.24.0).
     breaks : array_like of int, optional
         Record positions of declared events (:func:`fluxpart.gapfill.event_breaks`):
         the windows' parts within each piece, as the methods take their parameters
@@ -2134,9 +2139,13 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         fill_after=None if fill_sides is None else np.asarray(fill_sides[1], dtype=float),
         driver_delta=None if other_driver_reco is None else
         np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
-        driver_weight=0.0 if other_driver_reco is None else combined_driver_weight(
-            driver_weight(nee_measured, is_night, fluxes["reco_nighttime"].to_numpy(float),
-                          other_driver_reco), day_driver_statistic, day_evidence_critical))
+        driver_weight=0.0 if other_driver_reco is None else max(
+            combined_driver_weight(
+                driver_weight(nee_measured, is_night, fluxes["reco_nighttime"].to_numpy(float),
+                              other_driver_reco), day_driver_statistic, day_evidence_critical),
+            driver_mixture.mixture_share(nee_measured, is_night,
+                                         fluxes["reco_nighttime"].to_numpy(float),
+                                         other_driver_reco) ** 2))
 
 
 def _nan_to_zero(values) -> np.ndarray:

@@ -11,7 +11,8 @@ import fluxpart
 ROOT = Path(fluxpart.__file__).parent
 #: modules that compute a method or stage; a writer of results needs none of them
 METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "column_faults",
-                  "gap_sides", "gapfill", "method_failure", "partition", "preflight", "responses",
+                  "driver_mixture", "gap_sides", "gapfill", "method_failure", "partition",
+                  "preflight", "responses",
                   "scenarios", "screening", "solar", "storage_check", "uncertainty",
                   "unit_checks", "ustar", "ustar_seasonal", "demo"}
 ORCHESTRATORS = {"pipeline", "batch", "cli", "verify", "diff", "report"}
