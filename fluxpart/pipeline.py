@@ -1123,7 +1123,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                                           year_keys=year_keys)
     annual = annual.join(uncertainty.uncertainty_budget(annual, random, parts))
     notes.extend(gap_sides.state_change_notes(index, nee_filled, *sides, interval,
-                                              annual["nee_uncertainty_gapfill"]))
+                                              annual["nee_uncertainty_gapfill"], year_keys))
     return tables[0], tables[1], annual, gapfill_model, notes
 
 
