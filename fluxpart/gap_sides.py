@@ -57,6 +57,7 @@ def long_gaps(filled, records_per_day: int, min_days: float = MIN_GAP_DAYS, brea
     -------
     starts, lengths : numpy.ndarray of int
         First record of each long gap and its length [records].
+
     References
     ----------
     Reichstein et al. (2005); Richardson & Hollinger (2007): see the module docstring.
@@ -94,6 +95,7 @@ def one_sided_fills(nee_measured, starts, lengths, fill):
         before the gap (those from the gap's end on hidden) and from those after it
         (those up to the gap's start hidden); NaN outside the gaps and where a fill
         found no donor.
+
     References
     ----------
     Reichstein et al. (2005); Richardson & Hollinger (2007): see the module docstring.
