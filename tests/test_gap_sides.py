@@ -315,3 +315,39 @@ def test_the_run_compares_gaps_with_the_budget_years_of_year_start(monkeypatch):
         pipeline.process(frame, demo.site(), Config(year_start="07-01"))
     assert seen["labels"] == [2020, 2021]
     assert np.array_equal(seen["keys"], budget_year_numbers(seen["index"], "07-01"))
+
+
+def test_the_run_counts_a_gap_across_the_green_up_and_names_it(monkeypatch):
+    """Known-truth wiring (invented grassland year, `demo.site_year`, green-up in spring):
+    a 34-day NEE gap from 26 March to 29 April is named, and the run's annual gap-filling
+    variance exceeds that of the same run without the one-sided fills by the named
+    term's square (variances of independent parts add, Bienaymé's formula); the daytime
+    GPP parameter part grows too (the windows on either side of the outage differ).
+    Removing either input of `record_inputs` fails this test."""
+    import re
+
+    from fluxpart import demo, pipeline
+
+    frame, _ = demo.site_year(0)
+    frame.loc[(frame.index >= "2021-03-26") & (frame.index < "2021-04-29"), "nee"] = np.nan
+
+    def run():
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            return pipeline.process(frame, demo.site())
+
+    full = run()
+    named = [w for w in full.warnings if "spans a change of state" in w]
+    assert len(named) == 1 and "(34 days)" in named[0]
+    sigma = float(re.search(r"counts ([\d.]+) g C m-2 \(1 sigma\)", named[0]).group(1))
+    original = pipeline.uncertainty.record_inputs
+
+    def without_sides(*args, **kwargs):
+        return original(*args, **{**kwargs, "fill_sides": None, "daytime_result": None})
+
+    monkeypatch.setattr(pipeline.uncertainty, "record_inputs", without_sides)
+    plain = run()
+    with_term, without = (r.annual["nee_uncertainty_gapfill"].iloc[0] for r in (full, plain))
+    assert with_term**2 - without**2 == pytest.approx(sigma**2, abs=0.1 * sigma)
+    day = "gpp_daytime_uncertainty_parameters"
+    assert full.annual[day].iloc[0] > plain.annual[day].iloc[0]
