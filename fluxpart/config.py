@@ -567,8 +567,14 @@ class Config:
         return cls(**values)
 
     @classmethod
-    def from_toml(cls, path) -> Config:
-        """Read the ``[processing]`` table of a site config; defaults where absent."""
+    def from_toml(cls, path, recorded_threshold: float | None = None) -> Config:
+        """Read the ``[processing]`` table of a site config; defaults where absent.
+
+        ``ustar_method = "fixed"`` without ``ustar_threshold`` is refused (since
+        0.24.0), unless `recorded_threshold` [m s-1] is given: the threshold a result
+        computed before then recorded in its manifest, taken by ``fluxpart verify``
+        to rerun that result as it was computed.
+        """
         document = read_toml(path, "site config")
         processing = document.get("processing", {})
         if not isinstance(processing, dict):
@@ -581,6 +587,9 @@ class Config:
                 raise ConfigError(f"[processing] {key} = {setting_text(processing[key])}: "
                                   f"{key} belongs under [{owner}], not [processing]: move it "
                                   "there")
+        if processing.get("ustar_method") == "fixed" and "ustar_threshold" not in processing \
+                and recorded_threshold is not None:
+            processing = {**processing, "ustar_threshold": recorded_threshold}
         if processing.get("ustar_method") == "fixed" and "ustar_threshold" not in processing:
             # the default is the fall-back of years without a detected threshold, typical
             # of towers in general: a fixed threshold is the site's own value

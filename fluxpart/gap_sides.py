@@ -27,6 +27,7 @@ For. Meteorol. 147, 199–208 (long gaps carry most of the gap-filling error).
 from __future__ import annotations
 
 import numpy as np
+import pandas as pd
 
 #: Gaps longer than this [days] get the two one-sided fills. Marginal distribution
 #: sampling first looks for donors within ±7 days (Reichstein et al. 2005): in a gap of
@@ -56,6 +57,7 @@ def long_gaps(filled, records_per_day: int, min_days: float = MIN_GAP_DAYS, brea
     -------
     starts, lengths : numpy.ndarray of int
         First record of each long gap and its length [records].
+
     References
     ----------
     Reichstein et al. (2005); Richardson & Hollinger (2007): see the module docstring.
@@ -93,6 +95,7 @@ def one_sided_fills(nee_measured, starts, lengths, fill):
         before the gap (those from the gap's end on hidden) and from those after it
         (those up to the gap's start hidden); NaN outside the gaps and where a fill
         found no donor.
+
     References
     ----------
     Reichstein et al. (2005); Richardson & Hollinger (2007): see the module docstring.
@@ -138,27 +141,35 @@ def state_change_variance(fill, before, after, codes, periods: int, records=None
     -------
     numpy.ndarray
         Per period [(µmol m-2 s-1)² summed over records, i.e. the square of a sum of
-        µmol m-2 s-1]: Σ over the gaps' parts in the period of
-        ``(m − F)² + D² / 12``, with ``B``, ``A`` and ``F`` the sums of the part's
-        before-side, after-side and central fills, ``m = (A + B) / 2`` and
-        ``D = A − B``.
+        µmol m-2 s-1]: Σ over the gaps' parts in the period of the part's mean square
+        error ``(E[S] − F)² + Var[S]``, ``B``, ``A`` and ``F`` the sums of the part's
+        before-side, after-side and central fills and ``D = A − B``; for a gap wholly
+        in the period ``E[S] = m = (A + B) / 2`` and ``Var[S] = D² / 12``.
 
     Notes
     -----
     If the ecosystem changes from the state the before-side donors describe to the
     one the after-side donors describe at a time u within the gap, the true sum of a
-    gap's part is close to ``A + u' (B − A)``, u' the share of the part before the
-    change. With u' uniform on [0, 1] (nothing in the records tells when the change
-    came), the sum has mean m and variance D²/12 (the variance of a uniform
-    distribution), and the central fill F errs by ``(m − F)² + D²/12`` in mean
-    square. Where both sides describe the same state, A ≈ B ≈ F and the term
+    gap's part is close to ``A + x (B − A)``, x the share of the part before the
+    change. With u uniform over the gap (nothing in the records tells when the change
+    came) and a whole gap, x is uniform on [0, 1]: the sum has mean m and variance
+    D²/12 (the variance of a uniform distribution), and the central fill F errs by
+    ``(m − F)² + D²/12`` in mean square. A part of a gap (a day, a month or a budget
+    year of a gap that runs on) spanning the shares p0 to p1 of the gap lies wholly
+    before the change with probability 1 − p1, wholly after it with probability p0,
+    and is cut by it otherwise (x uniform): ``E[x] = 1 − p1 + (p1 − p0)/2``,
+    ``E[x²] = 1 − p1 + (p1 − p0)/3``, ``E[S] = A − E[x] D``,
+    ``Var[S] = D² (E[x²] − E[x]²)``; a day in the middle of a long gap is one state
+    or the other, each half the time (D²/4), a day at its start is most likely the
+    state before. Where both sides describe the same state, A ≈ B ≈ F and the term
     vanishes; a fill that took its donors from one side only (as similarity of
     temperature does in spring, when the warm days of the gap resemble the days
-    after leaf-out) carries D²/3. A change that is not monotonic within the gap
-    (a harvest and regrowth) is not described. A record whose one-sided fill
-    found no donor counts its central fill on that side (no evidence of a change).
-    Both sides are filled with the run's own method and settings, so the weather
-    of the gap is accounted for by the donors' similarity as in the central fill.
+    after leaf-out) carries D²/3 over the whole gap. A change that is not monotonic
+    within the gap (a harvest and regrowth) is not described. A record whose
+    one-sided fill found no donor counts its central fill on that side (no evidence
+    of a change). Both sides are filled with the run's own method and settings, so
+    the weather of the gap is accounted for by the donors' similarity as in the
+    central fill.
 
     References
     ----------
@@ -175,35 +186,57 @@ def state_change_variance(fill, before, after, codes, periods: int, records=None
     before = np.asarray(before, dtype=float)
     after = np.asarray(after, dtype=float)
     codes = np.asarray(codes, dtype=np.int64)
-    in_gap = np.isfinite(before) | np.isfinite(after)
+    periods = int(periods)
+    span = np.isfinite(before) | np.isfinite(after)
+    in_gap = span & np.isfinite(fill)
     if records is not None:
         in_gap &= np.asarray(records, dtype=bool)
-    in_gap &= np.isfinite(fill)
     if not in_gap.any():
-        return np.zeros(int(periods))
+        return np.zeros(periods)
     # gap number of each record (runs of the long gaps' records), then one group per gap
     # and period
     if groups is None:
-        starts = np.diff(np.concatenate([[0], (np.isfinite(before) | np.isfinite(after))
-                                         .astype(np.int8)])) == 1
+        starts = np.diff(np.concatenate([[0], span.astype(np.int8)])) == 1
         gap = np.cumsum(starts) - 1
     else:
         gap = np.asarray(groups, dtype=np.int64)
-    group = gap[in_gap] * int(periods) + codes[in_gap]
+    # where each part lies in its gap: the shares p0 .. p1 of the gap's records (all of
+    # them, whether counted or not), from the first and last record of the part
+    span_gap = gap[span]
+    _, gap_of, gap_size = np.unique(span_gap, return_inverse=True, return_counts=True)
+    position = pd.Series(span_gap).groupby(span_gap).cumcount().to_numpy()
+    span_part = span_gap * periods + codes[span]
+    parts, part_of = np.unique(span_part, return_inverse=True)
+    first = np.full(parts.size, np.iinfo(np.int64).max)
+    last = np.full(parts.size, -1)
+    np.minimum.at(first, part_of, position)
+    np.maximum.at(last, part_of, position)
+    size = np.zeros(parts.size, dtype=np.int64)
+    size[part_of] = gap_size[gap_of]
+    group = gap[in_gap] * periods + codes[in_gap]
     central = fill[in_gap]
     early = np.where(np.isfinite(before[in_gap]), before[in_gap], central)
     late = np.where(np.isfinite(after[in_gap]), after[in_gap], central)
-    labels, position = np.unique(group, return_inverse=True)
-    sums = [np.bincount(position, weights=values, minlength=labels.size)
+    labels, where = np.unique(group, return_inverse=True)
+    sums = [np.bincount(where, weights=values, minlength=labels.size)
             for values in (central, early, late)]
     f, b, a = sums
+    found = np.searchsorted(parts, labels)
+    p0 = first[found] / size[found]
+    p1 = (last[found] + 1) / size[found]
+    whole = (first[found] == 0) & (last[found] + 1 == size[found])
     middle = (a + b) / 2.0
     variance = np.square(middle - f) + np.square(a - b) / 12.0
-    return np.bincount(labels % int(periods), weights=variance, minlength=int(periods))
+    # a part of a gap: the change before it, after it or within it (Notes)
+    share = 1.0 - p1 + (p1 - p0) / 2.0
+    spread = np.maximum(1.0 - p1 + (p1 - p0) / 3.0 - np.square(share), 0.0)
+    partial = np.square(a - share * (a - b) - f) + np.square(a - b) * spread
+    variance = np.where(whole, variance, partial)
+    return np.bincount(labels % periods, weights=variance, minlength=periods)
 
 
 def state_change_notes(index, fill, before, after, interval_minutes: int,
-                       gapfill_sigma) -> list:
+                       gapfill_sigma, year_keys=None) -> list:
     """Warnings naming each long gap whose change of state is most of its year's
     gap-filling uncertainty.
 
@@ -217,15 +250,21 @@ def state_change_notes(index, fill, before, after, interval_minutes: int,
         Record length [min].
     gapfill_sigma : pandas.Series
         The gap-filling part of each year's NEE uncertainty, 1 sigma [g C m-2], by
-        year (the annual ``nee_uncertainty_gapfill``).
+        budget year (the annual ``nee_uncertainty_gapfill``).
+    year_keys : array_like of int, optional
+        Budget year of each record (:func:`fluxpart.timestamps.budget_year_numbers`,
+        the labels of `gapfill_sigma`); default the calendar year of `index`.
 
     Returns
     -------
     list of str
-        One warning per gap whose state-change 1 sigma (:func:`state_change_variance`
-        over the whole gap) is at least half its year's gap-filling part (a quarter of
-        its variance or more): its dates, the sums of its fills from each side alone
-        and as filled [g C m-2], and that 1 sigma.
+        One warning per gap whose state-change 1 sigma in a budget year
+        (:func:`state_change_variance` over the gap's part in that year, as the
+        year's interval counts it) is at least half that year's gap-filling part (a
+        quarter of its variance or more): its dates, the sums of its fills from each
+        side alone and as filled [g C m-2], and that 1 sigma; a gap across two budget
+        years names the year of the larger share.
+
     References
     ----------
     Reichstein et al. (2005); Richardson & Hollinger (2007): see the module docstring.
@@ -233,6 +272,8 @@ def state_change_notes(index, fill, before, after, interval_minutes: int,
     fill = np.asarray(fill, dtype=float)
     before = np.asarray(before, dtype=float)
     after = np.asarray(after, dtype=float)
+    years = (np.asarray(pd.DatetimeIndex(index).year, dtype=np.int64) if year_keys is None
+             else np.asarray(year_keys, dtype=np.int64))
     grams = float(interval_minutes) * 60.0 * 12.011e-6      # g C m-2 per (µmol m-2 s-1)
     in_gap = np.isfinite(before) | np.isfinite(after)
     edges = np.diff(np.concatenate([[0], in_gap.astype(np.int8), [0]]))
@@ -242,22 +283,34 @@ def state_change_notes(index, fill, before, after, interval_minutes: int,
         central = fill[part]
         if not np.isfinite(central).any():
             continue
-        sigma = float(np.sqrt(state_change_variance(central, before[part], after[part],
-                                                    np.zeros(end - start, int), 1)[0])) * grams
-        year = int(index[start].year)
-        reference = float(gapfill_sigma.get(year, np.nan))
-        if not np.isfinite(reference) or sigma < 0.5 * reference or sigma == 0.0:
+        # the gap's part in each budget year, as that year's interval counts it
+        labels, codes = np.unique(years[part], return_inverse=True)
+        sigmas = np.sqrt(state_change_variance(central, before[part], after[part], codes,
+                                               labels.size)) * grams
+        references = np.array([float(gapfill_sigma.get(int(year), np.nan))
+                               for year in labels])
+        with np.errstate(divide="ignore", invalid="ignore"):
+            shares = np.where(np.isfinite(references) & (sigmas > 0.0),
+                              sigmas / references, np.nan)
+        if not (shares >= 0.5).any():
             continue
+        worst = int(np.nanargmax(shares))
+        sigma, reference = float(sigmas[worst]), float(references[worst])
         sums = [float(np.nansum(np.where(np.isfinite(side), side, central))) * grams
                 for side in (before[part], after[part])]
         days = (end - start) * float(interval_minutes) / 1440.0
+        counted = (f"the interval counts {sigma:.1f} g C m-2 (1 sigma) for the unknown time "
+                   f"of the change, {sigma / reference * 100:.0f} % of the year's "
+                   "gap-filling part" if labels.size == 1 else
+                   f"the interval of budget year {int(labels[worst])} counts {sigma:.1f} g C "
+                   f"m-2 (1 sigma) for the unknown time of the change, "
+                   f"{sigma / reference * 100:.0f} % of that year's gap-filling part")
         notes.append(
             f"the NEE gap {index[start]:%Y-%m-%d %H:%M} to {index[end - 1]:%Y-%m-%d %H:%M} "
             f"({days:.0f} days) spans a change of state: filled from the records before it "
             f"alone it sums to {sums[0]:+.1f} g C m-2, from those after it alone to "
-            f"{sums[1]:+.1f}, as filled to {float(np.nansum(central)) * grams:+.1f}; the "
-            f"interval counts {sigma:.1f} g C m-2 (1 sigma) for the unknown time of the "
-            f"change, {sigma / reference * 100:.0f} % of the year's gap-filling part. Where "
+            f"{sums[1]:+.1f}, as filled to {float(np.nansum(central)) * grams:+.1f}; "
+            f"{counted}. Where "
             "the site's log dates the change (leaf-out, a harvest or cut, rain after a "
             "drought), declare it as an event so that neither side fills the other")
     return notes

@@ -1123,7 +1123,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
                                           year_keys=year_keys)
     annual = annual.join(uncertainty.uncertainty_budget(annual, random, parts))
     notes.extend(gap_sides.state_change_notes(index, nee_filled, *sides, interval,
-                                              annual["nee_uncertainty_gapfill"]))
+                                              annual["nee_uncertainty_gapfill"], year_keys))
     return tables[0], tables[1], annual, gapfill_model, notes
 
 
@@ -1209,7 +1209,10 @@ def process_site_config(path, config: Config | None = None, *, progress=None,
             f"[input] path: {site_config.input_path} changed while it was read (its SHA-256 "
             "differs before and after); the result would record another file than the one "
             "computed from: rerun once the file is complete (a logger or copy still writing?)")
-    from_file = Config.from_toml(path)
+    # a given fixed threshold stands for one the site config lacks (fluxpart verify of a
+    # result from before 0.24.0, which took the default; Config.from_toml)
+    from_file = Config.from_toml(path, recorded_threshold=config.ustar_threshold if (
+        config is not None and config.ustar_method == "fixed") else None)
     if Path(path).read_bytes() != config_bytes:
         # saved from an editor while the run read its input: the site, the settings and the
         # recorded text came from different versions (a genuine result then failed verify)

@@ -2231,8 +2231,10 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         :mod:`fluxpart.gap_sides`): the gap is filled again from the records
         before it only and after it only, and a change of the canopy from the
         one state to the other at a uniformly distributed time within the gap
-        adds ``(m − F)² + D²/12`` per gap and period (F, B, A the central and
-        the two one-sided fills' sums, m = (A + B)/2, D = A − B;
+        adds ``(m − F)² + D²/12`` per gap (F, B, A the central and the two
+        one-sided fills' sums, m = (A + B)/2, D = A − B); a day, month or year
+        holding part of a gap counts that part's mean square error under the same
+        change time over the whole gap (a day mid-gap is one state or the other;
         :func:`fluxpart.gap_sides.state_change_variance`). The artificial gaps
         meet a change of state only as often as a gap placed at random does,
         so a real gap across the green-up was stated as certain as one in
@@ -2269,7 +2271,8 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       window in use (an NEE outage of weeks; since 0.24.0): each record's GPP is
       the time-weighted mean of the light responses of the windows on either
       side, and a change of the canopy from the one to the other at an unknown
-      time within the stretch adds ``(m − F)² + D²/12`` per stretch and period
+      time within the stretch adds ``(m − F)² + D²/12`` per stretch, and per
+      part of it in a period as for a gap's part
       (:func:`fluxpart.gap_sides.state_change_variance`, the sums of the two
       windows' GPP over the stretch's records), as for a long NEE gap; the
       Rref bridge above covers the respiration only.

@@ -1222,10 +1222,32 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
         # the settings came from the site config's [processing] table: rerun from it,
         # so that a setting edited in the manifest is named as a differing field (also
         # one the manifest holds out of range, which is not read as settings at all)
-        config = Config.from_toml(site_config)
+        threshold = None
+        if _fixed_without_threshold(site_config):
+            # a result of a version before 0.24.0 took the default threshold: rerun it so
+            # (the manifest's settings are read only then)
+            recorded = recorded_config()
+            threshold = recorded.ustar_threshold if recorded.ustar_method == "fixed" else None
+        config = Config.from_toml(site_config, recorded_threshold=threshold)
+        if threshold is not None:
+            notes.append(f'site config: [processing] ustar_method = "fixed" without '
+                         f"ustar_threshold is refused for new runs since 0.24.0; rerun "
+                         f"with the threshold the result recorded, {threshold:g} m s-1 "
+                         f"(write ustar_threshold = {threshold:g} in the site config to run "
+                         "it again)")
     else:
         config = recorded_config()
     return "run", process_site_config(site_config, config, input_path=data_path), []
+
+
+def _fixed_without_threshold(site_config) -> bool:
+    """True where the site config's ``[processing]`` sets ``ustar_method = "fixed"``
+    without ``ustar_threshold`` (refused for runs since 0.24.0)."""
+    from ._validate import read_toml
+
+    processing = read_toml(site_config, "site config").get("processing", {})
+    return isinstance(processing, dict) and processing.get("ustar_method") == "fixed" \
+        and "ustar_threshold" not in processing
 
 
 # --------------------------------------------------------------------------- public

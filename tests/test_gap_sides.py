@@ -1,5 +1,7 @@
 """The two sides of a long NEE gap (fluxpart.gap_sides): a fill across a change of state."""
 
+import warnings
+
 import numpy as np
 import pandas as pd
 import pytest
@@ -45,22 +47,54 @@ def test_state_change_variance_is_the_mean_square_error_of_a_uniform_change_time
 def test_state_change_variance_by_period_and_records():
     """Each gap's part in a period counts apart; `records` restricts the sums; records
     outside the long gaps (NaN sides) count nothing; a side without donors (NaN inside
-    the gap) takes the central fill."""
+    the gap) takes the central fill; a gap wholly in one period takes (m − F)² + D²/12."""
     n = 10
     fill = np.zeros(n)
     before = np.full(n, np.nan)
     after = np.full(n, np.nan)
     before[2:8], after[2:8] = 1.0, -1.0                     # one gap, records 2-7
     codes = np.array([0] * 5 + [1] * 5)                      # records 2-4 and 5-7
+    whole = state_change_variance(fill, before, after, np.zeros(n, int), 1)
+    assert whole == pytest.approx([(6 * 2.0) ** 2 / 12])
+    # each half of the gap: E[x] = 3/4 (first) or 1/4, E[x²] = 2/3 or 1/6 (Notes),
+    # so E[S] = ±1.5 and Var[S] = 36 (2/3 − 9/16) = 3.75
     out = state_change_variance(fill, before, after, codes, 2)
-    assert out == pytest.approx([(3 * 2.0) ** 2 / 12, (3 * 2.0) ** 2 / 12])
+    assert out == pytest.approx([1.5**2 + 3.75] * 2)
     day = np.zeros(n, dtype=bool)
-    day[[2, 3]] = True
+    day[[2, 3]] = True                                       # sums over these two only
     assert state_change_variance(fill, before, after, codes, 2, records=day) == \
-        pytest.approx([(2 * 2.0) ** 2 / 12, 0.0])
+        pytest.approx([1.0**2 + 16 * (2 / 3 - 9 / 16), 0.0])
     after[2:8] = np.nan                                      # no donor after the gap
-    assert state_change_variance(fill, before, after, codes, 2) == \
-        pytest.approx([(3 / 2) ** 2 + 3.0 ** 2 / 12] * 2)
+    assert state_change_variance(fill, before, after, np.zeros(n, int), 1) == \
+        pytest.approx([3.0**2 + 6.0**2 / 12])
+
+
+@pytest.mark.parametrize("cut", [0.1, 0.5, 0.83])
+@pytest.mark.parametrize("fill_value", [-3.0, 1.0, -1.0, 0.3])
+def test_a_part_of_a_gap_is_scored_against_every_change_time(cut, fill_value):
+    """Known truth by brute force: a gap of n records changes from flux b to flux a after
+    k records, k uniformly 0..n (nothing tells when; the uniform distribution, a
+    textbook fact). The part of the gap in each of two periods (a budget year, a month
+    or a day of a gap that runs on) errs by the mean square over every k of the part's
+    true sum minus its fill; before review29 each part was scored as if the change
+    fell uniformly within the part itself, which for a day in the middle of a long gap
+    gave D²/12 instead of about D²/4."""
+    n, b, a = 2000, 1.0, -3.0
+    before, after = np.full(n, b), np.full(n, a)
+    fill = np.full(n, fill_value)
+    split = int(cut * n)
+    codes = (np.arange(n) >= split).astype(int)
+    stated = state_change_variance(fill, before, after, codes, 2)
+    changes = np.arange(n + 1)[:, None]                      # change after k records
+    truth = np.where(np.arange(n)[None, :] < changes, b, a)
+    for period, part in enumerate((slice(0, split), slice(split, n))):
+        error = truth[:, part].sum(axis=1) - fill[part].sum()
+        assert stated[period] == pytest.approx(np.mean(np.square(error)), rel=0.01)
+    # a single day (48 records) in the middle: one state or the other, D²/4
+    middle = np.zeros(n, int)
+    middle[976:1024] = 1
+    day = state_change_variance(np.full(n, (a + b) / 2), before, after, middle, 2)[1]
+    assert day == pytest.approx((48 * (b - a)) ** 2 / 4, rel=0.03)
 
 
 def test_one_sided_fills_recover_each_sides_level_across_a_step_in_a_long_gap():
@@ -167,6 +201,41 @@ def test_state_change_notes_name_a_gap_that_dominates_the_gapfill_part():
                               pd.Series({2021: 3 * sigma})) == []
 
 
+def test_state_change_notes_compare_each_budget_years_part_with_that_year():
+    """With budget years from 1 July (timestamps.budget_year_numbers) a June gap belongs
+    to the budget year that started the July before (DESIGN.md §4.1: an interval
+    belongs to the budget year in which it starts): its term is compared with that
+    year's gap-filling part, not the calendar year's. A gap across the budget years'
+    boundary names the year whose interval its part weighs most in, with the part's
+    own 1 sigma as that year counts it (state_change_variance by year)."""
+    from fluxpart.timestamps import budget_year_numbers
+
+    index = pd.date_range("2022-05-01", periods=90 * 48, freq="30min")
+    n = len(index)
+    keys = budget_year_numbers(index, "07-01")               # 2021 until June, then 2022
+    fill = np.full(n, -1.0)
+    before = np.full(n, np.nan)
+    after = np.full(n, np.nan)
+    gap = slice(20 * 48, 50 * 48)                             # 21 May to 19 June 2022
+    before[gap], after[gap] = 1.0, -3.0
+    grams = 1800 * 12.011e-6
+    sigma = np.sqrt((30 * 48 * 4.0) ** 2 / 12) * grams
+    small, large = pd.Series({2021: sigma, 2022: 100 * sigma}), \
+        pd.Series({2021: 100 * sigma, 2022: sigma})
+    assert len(state_change_notes(index, fill, before, after, 30, small, keys)) == 1
+    assert state_change_notes(index, fill, before, after, 30, large, keys) == []
+    # across the boundary: 10 days in budget year 2021, 20 in 2022
+    before[:], after[:] = np.nan, np.nan
+    gap = slice(51 * 48, 81 * 48)                             # 21 June to 20 July 2022
+    before[gap], after[gap] = 1.0, -3.0
+    parts = np.sqrt(state_change_variance(fill[gap], before[gap], after[gap],
+                                          keys[gap] - 2021, 2)) * grams
+    notes = state_change_notes(index, fill, before, after, 30,
+                               pd.Series({2021: 10 * sigma, 2022: parts[1] * 1.5}), keys)
+    assert len(notes) == 1 and "budget year 2022" in notes[0]
+    assert f"counts {parts[1]:.1f} g C m-2 (1 sigma)" in notes[0] and "67 %" in notes[0]
+
+
 def test_daytime_gpp_of_the_two_windows_and_a_long_stretch_without_windows():
     """Known-truth recovery (invented record, the daytime test module's generator): with a
     45-day NEE outage in spring the daytime method interpolates GPP between the windows on
@@ -222,3 +291,63 @@ def test_period_uncertainty_adds_the_light_response_change_to_daytime_gpp():
         plain["gpp_daytime_uncertainty_parameters"].iloc[0] ** 2 + extra)
     assert sided["reco_daytime_uncertainty_parameters"].iloc[0] == \
         plain["reco_daytime_uncertainty_parameters"].iloc[0]
+
+
+def test_the_run_compares_gaps_with_the_budget_years_of_year_start(monkeypatch):
+    """The run hands the notes each record's budget year of `year_start` (DESIGN.md §4.1,
+    timestamps.budget_year_numbers), the labels of the annual table it compares with;
+    before review29 the notes took the calendar year, so a June gap of a July-to-June
+    budget was compared with the next budget year's gap-filling part."""
+    from fluxpart import Config, demo, pipeline
+    from fluxpart.timestamps import budget_year_numbers
+
+    seen = {}
+
+    def spy(index, fill, before, after, interval, gapfill_sigma, year_keys=None):
+        seen.update(index=index, keys=year_keys, labels=list(gapfill_sigma.index))
+        return []
+
+    monkeypatch.setattr(pipeline.gap_sides, "state_change_notes", spy)
+    frame, _ = demo.site_year(0)
+    frame.loc[(frame.index >= "2021-06-05") & (frame.index < "2021-06-28"), "nee"] = np.nan
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")          # the run's own warnings are not tested here
+        pipeline.process(frame, demo.site(), Config(year_start="07-01"))
+    assert seen["labels"] == [2020, 2021]
+    assert np.array_equal(seen["keys"], budget_year_numbers(seen["index"], "07-01"))
+
+
+def test_the_run_counts_a_gap_across_the_green_up_and_names_it(monkeypatch):
+    """Known-truth wiring (invented grassland year, `demo.site_year`, green-up in spring):
+    a 34-day NEE gap from 26 March to 29 April is named, and the run's annual gap-filling
+    variance exceeds that of the same run without the one-sided fills by the named
+    term's square (variances of independent parts add, Bienaymé's formula); the daytime
+    GPP parameter part grows too (the windows on either side of the outage differ).
+    Removing either input of `record_inputs` fails this test."""
+    import re
+
+    from fluxpart import demo, pipeline
+
+    frame, _ = demo.site_year(0)
+    frame.loc[(frame.index >= "2021-03-26") & (frame.index < "2021-04-29"), "nee"] = np.nan
+
+    def run():
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            return pipeline.process(frame, demo.site())
+
+    full = run()
+    named = [w for w in full.warnings if "spans a change of state" in w]
+    assert len(named) == 1 and "(34 days)" in named[0]
+    sigma = float(re.search(r"counts ([\d.]+) g C m-2 \(1 sigma\)", named[0]).group(1))
+    original = pipeline.uncertainty.record_inputs
+
+    def without_sides(*args, **kwargs):
+        return original(*args, **{**kwargs, "fill_sides": None, "daytime_result": None})
+
+    monkeypatch.setattr(pipeline.uncertainty, "record_inputs", without_sides)
+    plain = run()
+    with_term, without = (r.annual["nee_uncertainty_gapfill"].iloc[0] for r in (full, plain))
+    assert with_term**2 - without**2 == pytest.approx(sigma**2, abs=0.1 * sigma)
+    day = "gpp_daytime_uncertainty_parameters"
+    assert full.annual[day].iloc[0] > plain.annual[day].iloc[0]

@@ -1086,3 +1086,26 @@ def test_a_result_written_before_events_existed_verifies_bit_identical(copy, cap
     _edit_manifest(copy / "out", lambda m: m["config"].pop("events", None), reseal=True)
     assert main(["verify", str(copy / "out")]) == 0
     assert capsys.readouterr().out.startswith("bit-identical")
+
+
+def test_a_result_of_a_fixed_threshold_the_site_config_did_not_state_is_rerun(tmp_path):
+    """Before 0.24.0 `ustar_method = "fixed"` without `ustar_threshold` ran at the default
+    0.2 m s-1, and the manifest recorded it; since then `run` refuses such a site config.
+    The audit contract (DESIGN.md §4.1: the same input and settings give the same tables)
+    asks that such a sealed result can still be rerun: verify takes the threshold the
+    result recorded, says so in a note, and finds it bit-identical (review29: before, it
+    stopped with the refusal's `error:` line, exit 2, for every such older result)."""
+    path = make_bundle(tmp_path)
+    text = path.read_text().replace("ustar_threshold = 0.2\n", "")
+    path.write_text(text)
+    with pytest.raises(Exception, match="needs ustar_threshold"):
+        Config.from_toml(path)                  # a new run is refused, as since 0.24.0
+    # the result as 0.23.0 wrote it: the settings from the site config, 0.2 taken
+    older = Config.from_toml(path, recorded_threshold=0.2)
+    result = process_site_config(path, older)
+    assert result.provenance["settings"] == "site config"
+    result.write(tmp_path / "out")
+    report = verify(tmp_path / "out")
+    assert report.reproduced and report.exit_code == 0
+    assert any('ustar_method = "fixed" without ustar_threshold' in note and "0.2 m s-1" in note
+               for note in report.notes)
