@@ -103,6 +103,7 @@ from .column_faults import (
     rg_blank_in_the_dark,
     same_temperature_columns,
     shaded_rg,
+    sun_heated_tair,
     swapped_temperatures,
     swapped_temperatures_in_months,
     tair_lag,
@@ -473,6 +474,14 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                       screened["vpd"].to_numpy(dtype=float), names)
         if text:
             findings.append(Finding("input (vpd vapour pressure)", text, False))
+        if "rg" in screened.columns:
+            # a thermometer heated by the sun (round mistakes26)
+            text = sun_heated_tair(screened["tair"].to_numpy(dtype=float),
+                                   screened["rh"].to_numpy(dtype=float),
+                                   screened["vpd"].to_numpy(dtype=float),
+                                   screened["rg"].to_numpy(dtype=float), names)
+            if text:
+                findings.append(Finding("input (tair sunlit)", text, False))
     return findings
 
 

@@ -35,6 +35,7 @@ from fluxpart.column_faults import (
     same_temperature_columns,
     shaded_rg,
     storage_in_turbulent_flux,
+    sun_heated_tair,
     swapped_temperatures,
     swapped_temperatures_in_months,
     tair_lag,
@@ -1113,3 +1114,60 @@ def test_an_air_temperature_without_a_diurnal_course_is_named():
     assert flat_air_temperature(running, rg * 0.4, potential, stamps, STEP) is None
     assert flat_air_temperature(running[:9 * PER_DAY], rg[:9 * PER_DAY],
                                 potential[:9 * PER_DAY], stamps[:9 * PER_DAY], STEP) is None
+
+
+def _humid_sunny_record(seed: int = 0):
+    """An invented 60-day record: air temperature, RH and Rg, and the VPD a humidity probe
+    with its own (right) temperature writes, VPD = e_s(T) (1 - RH / 100)."""
+    rng = np.random.default_rng(seed)
+    hours = np.arange(60 * PER_DAY) * STEP / 60.0
+    sun = np.clip(np.sin(2 * np.pi * (hours % 24 - 6) / 24), 0, None)
+    rg = 850.0 * sun * rng.uniform(0.4, 1.0, hours.size)
+    air = 15.0 + 6.0 * np.sin(2 * np.pi * (hours % 24 - 9) / 24) + rng.normal(0, 0.3, hours.size)
+    rh = np.clip(75.0 - 25.0 * sun + rng.normal(0, 3, hours.size), 5, 100)
+    return air, rh, vpd_from_rh(rh, air), rg
+
+
+def test_a_thermometer_heated_by_the_sun_is_named():
+    # known-truth recovery (round mistakes26) on the invented record above: VPD and RH
+    # imply the air temperature through e_s (Campbell & Norman 1998, ch. 3 (m), the
+    # Magnus form of Alduchov & Eskridge 1996); a sensor heated by the sun reads several
+    # K high in strong sun and right in the dark (WMO-No. 8, part I ch. 2 (m)). On the
+    # example site tair + 0.012 K per W m-2 moved Reco by +290 g C m-2 without a word.
+    air, rh, vpd, rg = _humid_sunny_record()
+    assert sun_heated_tair(air, rh, vpd, rg) is None
+    # a constant offset between two sensors (a calibration, a sonic temperature) is quiet
+    assert sun_heated_tair(air + 2.5, rh, vpd, rg) is None
+    # a well-shielded sensor's radiation error (1 K at 1000 W m-2, Lin et al. 2001 (m))
+    assert sun_heated_tair(air + 0.001 * rg, rh, vpd, rg) is None
+    # a VPD derived from the tair column itself can never tell: quiet
+    panel = air + 0.012 * rg
+    assert sun_heated_tair(panel, rh, vpd_from_rh(rh, panel), rg) is None
+    for heating in (0.008, 0.012):
+        text = sun_heated_tair(air + heating * rg, rh, vpd, rg,
+                               {"tair": "PTemp", "vpd": "VPD", "rh": "RH"})
+        assert text is not None and "'PTemp'" in text and "sunlit" in text
+        excess = float(re.search(r"median ([\d.]+) K warmer", text).group(1))
+        sunlit = rg >= 500
+        assert excess == pytest.approx(float(np.median(heating * rg[sunlit])), abs=0.3)
+    # too few sunlit records to judge: quiet
+    assert sun_heated_tair(air + 0.012 * rg, rh, vpd, rg * 0.5) is None
+    # the preflight names it as a warning
+    stamps = pd.date_range("2021-06-01", periods=air.size, freq=f"{STEP}min")
+    frame = pd.DataFrame({"tair": air + 0.012 * rg, "rh": rh, "vpd": vpd, "rg": rg},
+                         index=stamps)
+    findings = [f for f in _column_faults(frame, None, STEP) if f.stage == "input (tair sunlit)"]
+    assert len(findings) == 1 and not findings[0].fatal
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_the_demo_air_temperature_is_not_named_as_heated(seed):
+    """Known-truth recovery on the invented Quillmoor site (fluxpart.demo): its own
+    temperature is quiet, the same record with 0.008 K per W m-2 of sun on the
+    thermometer is named."""
+    from fluxpart import demo
+
+    frame = demo.site_year(seed)[0]
+    air, rh, vpd, rg = (frame[c].to_numpy(dtype=float) for c in ("tair", "rh", "vpd", "rg"))
+    assert sun_heated_tair(air, rh, vpd, rg) is None
+    assert sun_heated_tair(air + 0.008 * np.clip(rg, 0, None), rh, vpd, rg) is not None
