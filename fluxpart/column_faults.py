@@ -2557,3 +2557,119 @@ def sun_heated_tair(tair, rh, vpd, rg, columns=None) -> str | None:
             "temperature, a sensor without its radiation shield or with its fan stopped) "
             "reads like this, and respiration extrapolated to its daytime temperatures "
             "overshoots; map the shielded air temperature as tair")
+
+
+#: Variables judged by :func:`placeholder_value`: quantities that turbulence and the
+#: sensor's own noise keep changing from record to record, with no value they rest at
+#: (relative humidity rests at 100 % in fog, VPD at 0, Rg at the night's 0 or offset, a
+#: soil at 0 °C while its water freezes or thaws; those are left out).
+PLACEHOLDER_VARIABLES = ("tair", "ustar")
+#: Smallest share of the present records one value must hold (1 %: a share of the gaps,
+#: which are 30-40 % of a year's flux records (Falge et al. 2001 (m)) and fewer of the
+#: drivers', written with one value).
+_PLACEHOLDER_SHARE = 0.01
+#: Smallest count of that value (a day of half-hours), as for NEE's codes.
+_PLACEHOLDER_MIN_COUNT = 48
+#: How many times as often as the mean of the two values one resolution step beside it.
+_PLACEHOLDER_RATIO = 10.0
+#: Separate runs the value must stand in: a stuck sensor holds one value in one run (named
+#: by the stuck-sensor check), a filler writes it into gap after gap.
+_PLACEHOLDER_MIN_RUNS = 5
+#: Distinct values the column needs, so that its resolution is fine against its spread.
+_PLACEHOLDER_MIN_LEVELS = 20
+#: How the message names each variable's measurement.
+_PLACEHOLDER_WHAT = {"tair": "a measured air temperature", "ustar": "a measured u*"}
+
+
+def placeholder_value(values, name: str, stamps=None, columns=None) -> str | None:
+    """A message where one value of a driver column stands in gap after gap, or None.
+
+    Parameters
+    ----------
+    values : array_like
+        The column's values in the frame's unit (°C for ``tair``, m s-1 for ``ustar``;
+        NaN = missing).
+    name : str
+        Canonical name, one of :data:`PLACEHOLDER_VARIABLES`.
+    stamps : array_like of datetime64, optional
+        Interval starts of the records, to date the first run.
+    columns : dict, optional
+        Canonical name -> file column, to name the column in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where no non-zero value holds 1 % or more of the present
+        records (and 48 or more) at ten times or more the mean count of the two values one
+        resolution step beside it, in five or more separate runs, with 1 % of the present
+        records or more both below and above it (a bound the column was clipped at is not
+        a filler) and no run holding half its count or more (a stuck sensor), or where the
+        column has fewer than 20 distinct values.
+
+    Notes
+    -----
+    The rule of the NEE missing-value codes (``unit_checks._nonzero_code_message``) for the
+    drivers: a continuous quantity measured at a fixed resolution (the smallest difference
+    between distinct values) gives any one value about as often as the values one step
+    either side of it. Air temperature changes by tenths of a K within every half-hour in
+    the surface layer's turbulence (Stull 1988 (m); Oke 1987 (m)), and a 30-min u* carries
+    a sampling error of ten percent or more (Lenschow et al. 1994 (m)). A value far more
+    frequent than its neighbours, in gap after gap, is a filler: a logger's default, or a
+    preprocessing step that wrote the mean into the driver's gaps. On the example site the
+    year's mean air temperature written into 15 % of the records moved nighttime GPP by
+    -57, Reco by -54 and daytime GPP by -87 g C m-2, named only as the day and night
+    methods preferring different temperatures (round mistakes26). Zero is left to
+    :func:`zero_coded_temperature` (a temperature) and to the u* filter (a calm night).
+
+    References
+    ----------
+    Falge, E., et al. (2001). Gap filling strategies for defensible annual sums of net
+    ecosystem exchange. Agric. For. Meteorol. 107, 43-69 (m).
+    Lenschow, D. H., Mann, J., & Kristensen, L. (1994). How long is long enough when
+    measuring fluxes and other turbulence statistics? J. Atmos. Oceanic Technol. 11,
+    661-673 (m).
+    Stull, R. B. (1988). An Introduction to Boundary Layer Meteorology. Kluwer (m).
+    """
+    values = np.asarray(values, dtype=float)
+    finite = np.isfinite(values)
+    present = values[finite]
+    nonzero = present[present != 0.0]
+    if nonzero.size < _PLACEHOLDER_MIN_COUNT:
+        return None
+    levels, counts = np.unique(nonzero, return_counts=True)
+    if levels.size < _PLACEHOLDER_MIN_LEVELS:
+        return None
+    most = int(np.argmax(counts))
+    code, count = float(levels[most]), int(counts[most])
+    if count < _PLACEHOLDER_MIN_COUNT or count < _PLACEHOLDER_SHARE * present.size:
+        return None
+    share = _PLACEHOLDER_SHARE * present.size
+    if (np.count_nonzero(present < code) < share
+            or np.count_nonzero(present > code) < share):
+        return None     # a bound the values were clipped at, not a filler inside them
+    step = float(np.min(np.diff(np.unique(present))))
+    tolerance = step * 1e-6
+    beside = int(np.count_nonzero(np.abs(np.abs(present - code) - step) <= tolerance))
+    if count < _PLACEHOLDER_RATIO * max(beside / 2.0, 1.0):
+        return None
+    at_code = present == code          # runs among the present records: gaps do not cut one
+    starts = at_code & ~np.concatenate([[False], at_code[:-1]])
+    runs = int(np.count_nonzero(starts))
+    if runs < _PLACEHOLDER_MIN_RUNS:
+        return None
+    run_of = np.cumsum(starts)[at_code]
+    if np.bincount(run_of).max() >= 0.5 * count:
+        return None     # mostly one run: a stuck sensor, named by the stuck-sensor check
+    column = (columns or {}).get(name, name)
+    first = ""
+    if stamps is not None and len(stamps) == values.size:
+        where = np.flatnonzero(finite)[int(np.argmax(starts))]
+        first = f", the first from {pd.DatetimeIndex(stamps)[where]:%Y-%m-%d %H:%M}"
+    return (f"{name} (column {column!r}): the value {code:g} occurs {count} times in {runs} "
+            f"separate runs ({count / present.size:.1%} of the present values{first}), "
+            f"against {beside} at ±{step:.3g}, the column's resolution, beside it: "
+            f"{_PLACEHOLDER_WHAT.get(name, 'a measured value')} does not repeat one value "
+            "that often, so it "
+            "looks like a filler written into the gaps (a logger's default, or the mean), "
+            "and the fits would read it as measured; mark it missing in a copy of the file "
+            "(or add it to [input] missing if no record measures it)")

@@ -87,6 +87,7 @@ import pandas as pd
 
 from . import night_uptake, solar
 from .column_faults import (
+    PLACEHOLDER_VARIABLES,
     censored_nee,
     delayed_tair,
     delayed_tair_in_a_year,
@@ -100,6 +101,7 @@ from .column_faults import (
     nee_hour_shift,
     nee_lag,
     nee_shift_from_month,
+    placeholder_value,
     rg_blank_in_the_dark,
     same_temperature_columns,
     shaded_rg,
@@ -441,6 +443,13 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                 screened.index, names)
             if text:
                 findings.append(Finding("input (nee one sign)", text, False))
+    for name in PLACEHOLDER_VARIABLES:
+        # one value written into gap after gap (round mistakes26)
+        if name in screened.columns:
+            text = placeholder_value(screened[name].to_numpy(dtype=float), name,
+                                     screened.index, names)
+            if text:
+                findings.append(Finding(f"input ({name} filler)", text, False))
     for name in ("tair", "tsoil"):
         if name in screened.columns:
             text = zero_coded_temperature(screened[name].to_numpy(dtype=float), name,
