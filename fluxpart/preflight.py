@@ -488,7 +488,8 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
             text = sun_heated_tair(screened["tair"].to_numpy(dtype=float),
                                    screened["rh"].to_numpy(dtype=float),
                                    screened["vpd"].to_numpy(dtype=float),
-                                   screened["rg"].to_numpy(dtype=float), names)
+                                   screened["rg"].to_numpy(dtype=float), names,
+                                   screened.index)
             if text:
                 findings.append(Finding("input (tair sunlit)", text, False))
     return findings

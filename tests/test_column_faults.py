@@ -1171,7 +1171,15 @@ def test_the_demo_air_temperature_is_not_named_as_heated(seed):
     frame = demo.site_year(seed)[0]
     air, rh, vpd, rg = (frame[c].to_numpy(dtype=float) for c in ("tair", "rh", "vpd", "rg"))
     assert sun_heated_tair(air, rh, vpd, rg) is None
+    assert sun_heated_tair(air, rh, vpd, rg, None, frame.index) is None
     assert sun_heated_tair(air + 0.008 * np.clip(rg, 0, None), rh, vpd, rg) is not None
+    # a fan stopped in July alone: diluted in the year, named by its month (that month
+    # moved the example's Reco by +69.3 g C m-2)
+    july = np.asarray(frame.index.month == 7)
+    heated = air + np.where(july, 0.012 * np.clip(rg, 0, None), 0.0)
+    assert sun_heated_tair(heated, rh, vpd, rg) is None
+    text = sun_heated_tair(heated, rh, vpd, rg, None, frame.index)
+    assert text is not None and "1 month(s): 2021-07 (" in text
 
 
 @pytest.mark.parametrize("name, decimals", [("tair", 2), ("tair", 1), ("ustar", 4), ("ustar", 3)])
