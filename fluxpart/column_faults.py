@@ -2455,3 +2455,258 @@ def flat_air_temperature(tair, rg, potential, stamps, interval_minutes: float,
             "spread over the records) or a deep soil probe reads like this, and the "
             "respiration fitted to it loses its temperature response; map the measured "
             "air temperature of each record")
+
+
+#: Global radiation [W m-2] from which a record counts as sunlit for
+#: :func:`sun_heated_tair`: strong sun, where an unshielded or unventilated sensor's
+#: radiation error is largest (several K; WMO 2018, CIMO guide part I ch. 2 (m)).
+_SUNLIT_RG = 500.0
+#: Global radiation [W m-2] below which a record counts as dark (no radiation error).
+_SUNLIT_DARK_RG = 5.0
+#: Highest RH [%] of a record judged: below it, VPD / (1 - RH / 100) is not noise.
+_SUNLIT_MAX_RH = 90.0
+#: Records each of the sunlit and the dark set need before the two are compared.
+_SUNLIT_MIN_RECORDS = 200
+#: Sunlit and dark records each calendar month needs to be judged alone.
+_SUNLIT_MONTH_RECORDS = 100
+#: Smallest excess [K] of the tair column over the humidity probe's implied temperature in
+#: sunlit records, beyond the same difference in dark records, that names the column.
+#: Aspirated or well-shielded sensors agree within a few tenths of a K, naturally
+#: ventilated shields under strong sun and light wind err by up to about 1-2 K (Lin et
+#: al. 2001 (m); WMO 2018 (m)); 3 K leaves two sensors of different shields inside.
+_SUNLIT_EXCESS = 3.0
+
+
+def sun_heated_tair(tair, rh, vpd, rg, columns=None, stamps=None) -> str | None:
+    """A message where the tair column reads warmer in sunlight than the humidity probe, or None.
+
+    Parameters
+    ----------
+    tair : array_like
+        The column mapped as air temperature [°C].
+    rh : array_like
+        Relative humidity [%].
+    vpd : array_like
+        The column mapped as VPD [hPa], as the file gives it.
+    rg : array_like
+        Global radiation [W m-2].
+    columns : dict, optional
+        Canonical name -> file column, to name the columns in the message.
+    stamps : array_like of datetime64, optional
+        Interval starts of the records: where the whole record is not named, each
+        calendar month with :data:`_SUNLIT_MONTH_RECORDS` sunlit and dark records is
+        judged alone by the same rule (a fan that stopped for a month).
+
+    Returns
+    -------
+    str or None
+        The warning text; None where the median of tair less the implied temperature over
+        sunlit records (Rg of :data:`_SUNLIT_RG` or more) exceeds the same median over
+        dark records (Rg below :data:`_SUNLIT_DARK_RG`) by less than
+        :data:`_SUNLIT_EXCESS`, or where fewer than :data:`_SUNLIT_MIN_RECORDS` records of
+        either set (RH up to 90 %) can judge. A VPD derived from RH and the tair column
+        itself always gives a difference of 0.
+
+    Notes
+    -----
+    VPD = e_s(T) (1 - RH / 100) holds at one moment (Campbell & Norman 1998, ch. 3 (m)),
+    so VPD and RH written by a humidity probe imply the air temperature T of each record
+    (the Magnus form of :func:`~fluxpart.variables.saturation_vapour_pressure`, inverted,
+    as in :func:`delayed_tair`). A thermometer heated by the sun, such as the logger's
+    panel temperature, a sensor without its radiation shield or with a stopped fan, reads
+    several K above the air in strong sun and light wind and right at night (WMO 2018,
+    part I ch. 2 (m); Lin et al. 2001 (m)). Respiration fitted at night and extrapolated
+    to those daytime temperatures overshoots: on the example site a tair column reading
+    0.012 K per W m-2 of Rg too warm (about 10 K at noon in summer) moved nighttime GPP by
+    +289, Reco by +290 and daytime GPP by +266 g C m-2 without a word (round mistakes26).
+    The day-minus-night form keeps a constant offset between the two sensors (a
+    calibration, a sonic temperature) out of the rule. Where the whole record is not
+    named, each calendar month with 100 sunlit and 100 dark records is judged alone: a
+    fan stopped in July only moved the example's Reco by +69.3 g C m-2, diluted below
+    the rule over the year.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 3 (m).
+    Lin, X., Hubbard, K. G., Walter-Shea, E. A., Brandle, J. R., & Meyer, G. E. (2001).
+    Some perspectives on recent in situ air temperature observations: modeling the
+    microclimate inside the radiation shields. Journal of Atmospheric and Oceanic
+    Technology 18, 1470-1484 (m).
+    WMO (2018). Guide to Instruments and Methods of Observation (WMO-No. 8), Volume I,
+    chapter 2: Measurement of temperature (m).
+    """
+    tair, rh, vpd, rg = (np.asarray(v, dtype=float) for v in (tair, rh, vpd, rg))
+    if not tair.size == rh.size == vpd.size == rg.size:
+        return None
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        usable = (np.isfinite(tair) & np.isfinite(rh) & np.isfinite(vpd) & np.isfinite(rg)
+                  & (rh >= 1.0) & (rh <= _SUNLIT_MAX_RH) & (vpd > 0))
+        saturation = np.where(usable, vpd / (1.0 - rh / 100.0), np.nan)
+        g = np.log(saturation / 6.1094)
+        implied = 243.04 * g / (17.625 - g)        # inverse of e_s = 6.1094 exp(17.625 T / (T + 243.04))
+        usable &= np.isfinite(implied) & (implied > -60) & (implied < 60)
+        sunlit = usable & (rg >= _SUNLIT_RG)
+        dark = usable & (rg < _SUNLIT_DARK_RG)
+    difference = tair - implied
+    names = columns or {}
+    if int(sunlit.sum()) < _SUNLIT_MIN_RECORDS or int(dark.sum()) < _SUNLIT_MIN_RECORDS:
+        return None
+    day = float(np.median(difference[sunlit]))
+    night = float(np.median(difference[dark]))
+    excess = day - night
+    if not excess >= _SUNLIT_EXCESS:
+        return _sun_heated_months(difference, sunlit, dark, stamps, names)
+    return (f"air temperature (column {names.get('tair', 'tair')!r}) reads a median "
+            f"{excess:.1f} K warmer, against the temperature that VPD "
+            f"({names.get('vpd', 'vpd')!r}) and RH ({names.get('rh', 'rh')!r}) imply, in "
+            f"sunlit records (Rg {_SUNLIT_RG:.0f} W m-2 or more, {int(sunlit.sum())} "
+            f"records: {day:+.1f} K) than in the dark ({int(dark.sum())} records: "
+            f"{night:+.1f} K): a thermometer heated by the sun (the logger's panel "
+            "temperature, a sensor without its radiation shield or with its fan stopped) "
+            "reads like this, and respiration extrapolated to its daytime temperatures "
+            "overshoots; map the shielded air temperature as tair")
+
+
+#: Variables judged by :func:`placeholder_value`: quantities that turbulence and the
+#: sensor's own noise keep changing from record to record, with no value they rest at
+#: (relative humidity rests at 100 % in fog, VPD at 0, Rg at the night's 0 or offset, a
+#: soil at 0 °C while its water freezes or thaws; those are left out).
+PLACEHOLDER_VARIABLES = ("tair", "ustar")
+#: Smallest share of the present records one value must hold (1 %: a share of the gaps,
+#: which are 30-40 % of a year's flux records (Falge et al. 2001 (m)) and fewer of the
+#: drivers', written with one value).
+_PLACEHOLDER_SHARE = 0.01
+#: Smallest count of that value (a day of half-hours), as for NEE's codes.
+_PLACEHOLDER_MIN_COUNT = 48
+#: How many times as often as the mean of the two values one resolution step beside it.
+_PLACEHOLDER_RATIO = 10.0
+#: Separate runs the value must stand in: a stuck sensor holds one value in one run (named
+#: by the stuck-sensor check), a filler writes it into gap after gap.
+_PLACEHOLDER_MIN_RUNS = 5
+#: Distinct values the column needs, so that its resolution is fine against its spread.
+_PLACEHOLDER_MIN_LEVELS = 20
+#: How the message names each variable's measurement.
+_PLACEHOLDER_WHAT = {"tair": "a measured air temperature", "ustar": "a measured u*"}
+
+
+def placeholder_value(values, name: str, stamps=None, columns=None) -> str | None:
+    """A message where one value of a driver column stands in gap after gap, or None.
+
+    Parameters
+    ----------
+    values : array_like
+        The column's values in the frame's unit (°C for ``tair``, m s-1 for ``ustar``;
+        NaN = missing).
+    name : str
+        Canonical name, one of :data:`PLACEHOLDER_VARIABLES`.
+    stamps : array_like of datetime64, optional
+        Interval starts of the records, to date the first run.
+    columns : dict, optional
+        Canonical name -> file column, to name the column in the message.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where no non-zero value holds 1 % or more of the present
+        records (and 48 or more) at ten times or more the mean count of the two values one
+        resolution step beside it, in five or more separate runs, with 1 % of the present
+        records or more both below and above it (a bound the column was clipped at is not
+        a filler) and no run holding half its count or more (a stuck sensor), or where the
+        column has fewer than 20 distinct values.
+
+    Notes
+    -----
+    The rule of the NEE missing-value codes (``unit_checks._nonzero_code_message``) for the
+    drivers: a continuous quantity measured at a fixed resolution (the smallest difference
+    between distinct values) gives any one value about as often as the values one step
+    either side of it. Air temperature changes by tenths of a K within every half-hour in
+    the surface layer's turbulence (Stull 1988 (m); Oke 1987 (m)), and a 30-min u* carries
+    a sampling error of ten percent or more (Lenschow et al. 1994 (m)). A value far more
+    frequent than its neighbours, in gap after gap, is a filler: a logger's default, or a
+    preprocessing step that wrote the mean into the driver's gaps. On the example site the
+    year's mean air temperature written into 15 % of the records moved nighttime GPP by
+    -57, Reco by -54 and daytime GPP by -87 g C m-2, named only as the day and night
+    methods preferring different temperatures (round mistakes26). Zero is left to
+    :func:`zero_coded_temperature` (a temperature) and to the u* filter (a calm night).
+
+    References
+    ----------
+    Falge, E., et al. (2001). Gap filling strategies for defensible annual sums of net
+    ecosystem exchange. Agric. For. Meteorol. 107, 43-69 (m).
+    Lenschow, D. H., Mann, J., & Kristensen, L. (1994). How long is long enough when
+    measuring fluxes and other turbulence statistics? J. Atmos. Oceanic Technol. 11,
+    661-673 (m).
+    Stull, R. B. (1988). An Introduction to Boundary Layer Meteorology. Kluwer (m).
+    """
+    values = np.asarray(values, dtype=float)
+    finite = np.isfinite(values)
+    present = values[finite]
+    nonzero = present[present != 0.0]
+    if nonzero.size < _PLACEHOLDER_MIN_COUNT:
+        return None
+    levels, counts = np.unique(nonzero, return_counts=True)
+    if levels.size < _PLACEHOLDER_MIN_LEVELS:
+        return None
+    most = int(np.argmax(counts))
+    code, count = float(levels[most]), int(counts[most])
+    if count < _PLACEHOLDER_MIN_COUNT or count < _PLACEHOLDER_SHARE * present.size:
+        return None
+    share = _PLACEHOLDER_SHARE * present.size
+    if (np.count_nonzero(present < code) < share
+            or np.count_nonzero(present > code) < share):
+        return None     # a bound the values were clipped at, not a filler inside them
+    step = float(np.min(np.diff(np.unique(present))))
+    tolerance = step * 1e-6
+    beside = int(np.count_nonzero(np.abs(np.abs(present - code) - step) <= tolerance))
+    if count < _PLACEHOLDER_RATIO * max(beside / 2.0, 1.0):
+        return None
+    at_code = present == code          # runs among the present records: gaps do not cut one
+    starts = at_code & ~np.concatenate([[False], at_code[:-1]])
+    runs = int(np.count_nonzero(starts))
+    if runs < _PLACEHOLDER_MIN_RUNS:
+        return None
+    run_of = np.cumsum(starts)[at_code]
+    if np.bincount(run_of).max() >= 0.5 * count:
+        return None     # mostly one run: a stuck sensor, named by the stuck-sensor check
+    column = (columns or {}).get(name, name)
+    first = ""
+    if stamps is not None and len(stamps) == values.size:
+        where = np.flatnonzero(finite)[int(np.argmax(starts))]
+        first = f", the first from {pd.DatetimeIndex(stamps)[where]:%Y-%m-%d %H:%M}"
+    return (f"{name} (column {column!r}): the value {code:g} occurs {count} times in {runs} "
+            f"separate runs ({count / present.size:.1%} of the present values{first}), "
+            f"against {beside} at ±{step:.3g}, the column's resolution, beside it: "
+            f"{_PLACEHOLDER_WHAT.get(name, 'a measured value')} does not repeat one value "
+            "that often, so it "
+            "looks like a filler written into the gaps (a logger's default, or the mean), "
+            "and the fits would read it as measured; mark it missing in a copy of the file "
+            "(or add it to [input] missing if no record measures it)")
+
+
+def _sun_heated_months(difference, sunlit, dark, stamps, names) -> str | None:
+    """The months whose own sunlit-minus-dark excess reaches :data:`_SUNLIT_EXCESS`, named
+    in a warning (see :func:`sun_heated_tair`), or None."""
+    if stamps is None or len(stamps) != difference.size:
+        return None
+    months = pd.DatetimeIndex(stamps).to_period("M")
+    found = []
+    for month in months.unique():
+        here = np.asarray(months == month)
+        day_set, dark_set = sunlit & here, dark & here
+        if (int(day_set.sum()) < _SUNLIT_MONTH_RECORDS
+                or int(dark_set.sum()) < _SUNLIT_MONTH_RECORDS):
+            continue
+        excess = float(np.median(difference[day_set]) - np.median(difference[dark_set]))
+        if excess >= _SUNLIT_EXCESS:
+            found.append(f"{month} ({excess:+.1f} K)")
+    if not found:
+        return None
+    return (f"air temperature (column {names.get('tair', 'tair')!r}) reads warmer, against "
+            f"the temperature that VPD ({names.get('vpd', 'vpd')!r}) and RH "
+            f"({names.get('rh', 'rh')!r}) imply, in sunlit records (Rg {_SUNLIT_RG:.0f} W "
+            f"m-2 or more) than in the dark by {_SUNLIT_EXCESS:.0f} K or more in "
+            f"{len(found)} month(s): {', '.join(found)} (median excess), while the whole "
+            "record does not: a thermometer heated by the sun for a time (a radiation "
+            "shield lost or a fan stopped) reads like this, and respiration extrapolated to "
+            "its daytime temperatures overshoots; check those months' air temperature")

@@ -87,6 +87,7 @@ import pandas as pd
 
 from . import night_uptake, solar
 from .column_faults import (
+    PLACEHOLDER_VARIABLES,
     censored_nee,
     delayed_tair,
     delayed_tair_in_a_year,
@@ -100,9 +101,11 @@ from .column_faults import (
     nee_hour_shift,
     nee_lag,
     nee_shift_from_month,
+    placeholder_value,
     rg_blank_in_the_dark,
     same_temperature_columns,
     shaded_rg,
+    sun_heated_tair,
     swapped_temperatures,
     swapped_temperatures_in_months,
     tair_lag,
@@ -440,6 +443,13 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                 screened.index, names)
             if text:
                 findings.append(Finding("input (nee one sign)", text, False))
+    for name in PLACEHOLDER_VARIABLES:
+        # one value written into gap after gap (round mistakes26)
+        if name in screened.columns:
+            text = placeholder_value(screened[name].to_numpy(dtype=float), name,
+                                     screened.index, names)
+            if text:
+                findings.append(Finding(f"input ({name} filler)", text, False))
     for name in ("tair", "tsoil"):
         if name in screened.columns:
             text = zero_coded_temperature(screened[name].to_numpy(dtype=float), name,
@@ -473,6 +483,15 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                       screened["vpd"].to_numpy(dtype=float), names)
         if text:
             findings.append(Finding("input (vpd vapour pressure)", text, False))
+        if "rg" in screened.columns:
+            # a thermometer heated by the sun (round mistakes26)
+            text = sun_heated_tair(screened["tair"].to_numpy(dtype=float),
+                                   screened["rh"].to_numpy(dtype=float),
+                                   screened["vpd"].to_numpy(dtype=float),
+                                   screened["rg"].to_numpy(dtype=float), names,
+                                   screened.index)
+            if text:
+                findings.append(Finding("input (tair sunlit)", text, False))
     return findings
 
 
