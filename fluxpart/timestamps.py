@@ -907,6 +907,12 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = ("; the stamps are spreadsheet formulas (=\"...\", written to keep a "
                     "cell as text), not stamps: write them without the = and the quotes in a "
                     "copy of the file (the sheet's values, not its formulas)")
+        elif text[failed].str.strip().str.fullmatch(r"'[^']*'").all():
+            # a program that quotes text with apostrophes (SQL and some scripting
+            # exports): CSV quotes with double quotes only (RFC 4180 section 2 (m))
+            hint = ("; the stamps are wrapped in single quotes ('...'), which are no CSV "
+                    "quotes (those are double quotes, \"...\"): remove the single quotes "
+                    "in a copy of the file, or write double quotes")
         elif (not isinstance(time_columns, str) and len(time_columns) > 1
               and "%H:%M" in time_format
               and text[failed].str.strip().str.fullmatch(r".*\s\d{1,4}").all()):
