@@ -3549,6 +3549,12 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
             hint = ("; it is a negative number in an accounting or business format ("
                     "'(1.5)' or '1.5-' for -1.5, a spreadsheet's or report's number format): "
                     "write negative numbers with a leading minus sign in a copy of the file")
+        elif cell.startswith("'") and pd.notna(pd.to_numeric(
+                cell[1:].replace(",", "." if decimal == "," else ","), errors="coerce")):
+            # a spreadsheet's mark for a number kept as text (layouts25: the hint was "add
+            # it to [input] missing", which would have blanked that one value)
+            hint = ("; it is a number with a leading apostrophe (a spreadsheet's mark for a "
+                    "number kept as text): remove the apostrophes in a copy of the file")
         elif name.startswith("nee_flag"):
             # a missing flag rejects nothing, so "add it to missing" would keep bad records
             hint = ("; site flags must be numbers (a record is kept where its flag is in "

@@ -116,3 +116,17 @@ def test_southern_site_an_hour_later_in_its_winter_is_not_daylight_saving():
     verdict = _check(rg, -35.3, 149.1, 10.0)
     assert verdict.status != "daylight_saving"
     assert verdict.problems and "daylight-saving" not in verdict.problems[0]
+
+
+def test_numbers_with_a_leading_apostrophe_are_named(tmp_path):
+    """Cells "'0.329": a spreadsheet's prefix that keeps a number as text (Excel and
+    LibreOffice (m)). Refused naming the apostrophe; before, the hint was to add the cell
+    to [input] missing, which would have blanked that one value and named the next."""
+    path = tmp_path / "tower.csv"
+    rows = ["stamp,fc,us,sw,ta,vpd"]
+    rows += [f"2021-06-01 {h:02d}:30,'-1.5,0.31,120.0,14.2,6.1" for h in range(8)]
+    path.write_text("\n".join(rows) + "\n")
+    with pytest.raises(InputFileError) as caught:
+        _read(path)
+    assert "leading apostrophe" in str(caught.value)
+    assert "add it to [input] missing" not in str(caught.value)
