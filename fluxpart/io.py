@@ -1853,6 +1853,12 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
     # the byte-order mark, also where files saved with one were joined end to end (a
     # header line starting with U+FEFF then is not the header line it repeats)
     text = text.replace("\ufeff", "")
+    # the end-of-file mark of CP/M and MS-DOS text files (Ctrl-Z, 0x1A; DOS `copy` and
+    # old logger programs write it after the last line (m)) is no content: dropped as the
+    # byte-order mark is (layouts25: it was dropped as "a record cut short or a footer",
+    # a problem in `check`, and one written right after the last value cut that value)
+    if text.rstrip("\r\n").endswith("\x1a"):
+        text = text.rstrip("\r\n").rstrip("\x1a")
     nul = text.find("\x00")
     if nul >= 0 and warnings is not None and not text[nul:].strip("\x00"):
         text = _drop_zero_tail(path, text, nul, warnings)

@@ -130,3 +130,17 @@ def test_numbers_with_a_leading_apostrophe_are_named(tmp_path):
         _read(path)
     assert "leading apostrophe" in str(caught.value)
     assert "add it to [input] missing" not in str(caught.value)
+
+
+@pytest.mark.parametrize("ending", ["\r\n\x1a", "\x1a", "\r\n\x1a\x1a\r\n"])
+def test_dos_end_of_file_mark_is_no_record(tmp_path, ending):
+    """A Ctrl-Z (0x1A) after the last line, or right after its last value: the end-of-file
+    mark of CP/M and MS-DOS text files (m). Read as no content, every record whole (known
+    truth: the values written); before, it was dropped as "a record cut short or a footer"
+    with a warning, and written right after the last value it made that value no number."""
+    path = tmp_path / "tower.csv"
+    stamps = [f"2021-06-01 {h:02d}:{m:02d}" for h in range(1, 5) for m in (0, 30)]
+    path.write_bytes(_lines(stamps).rstrip("\n").replace("\n", "\r\n").encode() + ending.encode())
+    frame, report = _read(path)
+    assert len(frame) == 8 and np.allclose(frame["vpd"], 6.1)
+    assert not report.warnings
