@@ -12,6 +12,7 @@ rules (m)). Everything else is invented known truth: the records as written.
 """
 
 import numpy as np
+import pandas as pd
 import pytest
 from clock_sites import synthetic_rg
 
@@ -144,3 +145,27 @@ def test_dos_end_of_file_mark_is_no_record(tmp_path, ending):
     frame, report = _read(path)
     assert len(frame) == 8 and np.allclose(frame["vpd"], 6.1)
     assert not report.warnings
+
+
+@pytest.mark.parametrize("stamp", ["2021-02-29 00:00", "2021-04-31 12:00"])
+def test_a_day_the_month_lacks_is_named(tmp_path, stamp):
+    """29 February 2021 (2021 is no leap year: Gregorian rule, divisible by 4 (m)) or 31
+    April (April has 30 days (m)) among valid stamps: refused naming the impossible day;
+    before, "1 stamp(s) fail to parse" gave no cause."""
+    stamps = [f"2021-06-01 {h:02d}:30" for h in range(6)]
+    stamps[3] = stamp
+    path = tmp_path / "tower.csv"
+    path.write_text(_lines(stamps))
+    with pytest.raises(TimestampError) as caught:
+        _read(path)
+    assert "names a day its month lacks" in str(caught.value)
+    assert stamp in str(caught.value)
+
+
+def test_a_leap_day_in_a_leap_year_reads(tmp_path):
+    """29 February 2020 exists (2020 is divisible by 4: a leap year (m)): read."""
+    stamps = ["2020-02-28 23:00", "2020-02-28 23:30", "2020-02-29 00:00", "2020-02-29 00:30"]
+    path = tmp_path / "tower.csv"
+    path.write_text(_lines(stamps))
+    frame, _ = _read(path)
+    assert frame.index[-1] == pd.Timestamp("2020-02-29 00:00")
