@@ -2321,11 +2321,22 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
                                   int(lines[0]))
         if changed:
             raise InputFileError(changed)
+        where = (f"input file {str(path)!r}: line {int(lines[row])} "
+                 f"({_shown_line(text_lines[lines[row] - 1])!r}) has "
+                 f"{_field_count(text_lines[lines[row] - 1], delimiter)} fields where the "
+                 f"header has {width}")
+        if delimiter == _WHITESPACE:
+            # blanks collapse: an empty value leaves no field and moves the values after
+            # it one column left (layouts25: the fix named was "write missing values as
+            # empty cells between delimiters", which such a file cannot hold)
+            raise InputFileError(
+                f"{where}; {len(inner)} such line(s) before the last: in a file whose fields "
+                "are separated by blanks an empty value leaves no field (the values after "
+                "it would move one column left), and a record cut short looks the same; "
+                "write each missing value as a code (e.g. -9999, listed in [input] missing) "
+                "in a copy of the file, or save it with a delimiter (\",\", \";\" or a tab)")
         raise InputFileError(
-            f"input file {str(path)!r}: line {int(lines[row])} "
-            f"({_shown_line(text_lines[lines[row] - 1])!r}) has "
-            f"{_field_count(text_lines[lines[row] - 1], delimiter)} fields where the header has "
-            f"{width}; a record cut short may hold a value cut mid-number; "
+            f"{where}; a record cut short may hold a value cut mid-number; "
             f"{len(inner)} such line(s) before the last. Complete or delete them (or a footer) "
             "in a copy of the file (write missing values as empty cells between delimiters)")
     fields = _field_count(text_lines[lines[last] - 1], delimiter)
