@@ -2335,6 +2335,15 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
                 "it would move one column left), and a record cut short looks the same; "
                 "write each missing value as a code (e.g. -9999, listed in [input] missing) "
                 "in a copy of the file, or save it with a delimiter (\",\", \";\" or a tab)")
+        if text_lines[lines[row] - 1].lstrip().startswith(("#", "//", ";")) and not (
+                delimiter == ";" and text_lines[lines[row] - 1].lstrip().startswith(";")):
+            # a note written among the records ("# sensor cleaned"): no record cut short
+            # (layouts25: the line named a value cut mid-number)
+            raise InputFileError(
+                f"{where}: a comment line among the records (it starts with "
+                f"{text_lines[lines[row] - 1].lstrip()[:2].rstrip()!r}); {len(inner)} such "
+                "line(s) before the last. Delete them in a copy of the file (keep the notes "
+                "in a separate file)")
         raise InputFileError(
             f"{where}; a record cut short may hold a value cut mid-number; "
             f"{len(inner)} such line(s) before the last. Complete or delete them (or a footer) "

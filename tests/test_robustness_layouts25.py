@@ -190,3 +190,18 @@ def test_whitespace_file_with_empty_values_names_the_collapse(tmp_path):
     message = str(caught.value)
     assert "line 4" in message and "an empty value leaves no field" in message
     assert "empty cells between delimiters" not in message
+
+
+def test_comment_line_among_records_is_named(tmp_path):
+    """A note written among the records ("# sensor cleaned"; '#' opens a comment in many
+    text formats, common practice): refused naming a comment line, not a record cut short
+    mid-number as before."""
+    rows = ["stamp,fc,us,sw,ta,vpd"]
+    rows += [f"2021-06-01 {h:02d}:30,-1.5,0.31,120.0,14.2,6.1" for h in range(8)]
+    rows.insert(4, "# sensor cleaned")
+    path = tmp_path / "tower.csv"
+    path.write_text("\n".join(rows) + "\n")
+    with pytest.raises(InputFileError) as caught:
+        _read(path)
+    assert "line 5" in str(caught.value) and "comment line" in str(caught.value)
+    assert "cut mid-number" not in str(caught.value)
