@@ -684,8 +684,8 @@ def _daylight_saving(used: pd.DataFrame, latitude: float | None = None):
 
     Where `latitude` [degrees north] is given, the later months must lie in its
     hemisphere's daylight-saving season (:data:`_SAVING_MONTHS`): a block of months an
-    hour later outside it (January to June in the north: a logger reset from UTC to
-    local time at midyear) is a clock changed once, not summer time, and
+    hour later outside it (January to June in the north: a logger reset between local
+    time and UTC at midyear) is a clock changed once, not summer time, and
     ``time_zone = "Area/City"`` would not mend it (layouts25).
 
     References
