@@ -147,6 +147,15 @@ _BINARY_SIGNATURES = (
     (b"CDF\x01", "a NetCDF file", "export it as CSV"),
     (b"CDF\x02", "a NetCDF file", "export it as CSV"),
     (b"\xfd7zXZ\x00", "xz-compressed", "decompress it (e.g. unxz)"),
+    # compressors the standard library cannot open (layouts25: read as text, their bytes
+    # were refused as "not utf-8 text" with the hint to set [input] encoding): Zstandard
+    # (frame magic 0xFD2FB528 little-endian, RFC 8878 section 3.1.1), LZ4 (frame magic
+    # 0x184D2204 little-endian, LZ4 frame format description (m)), lzip ("LZIP", lzip
+    # manual (m)) and Unix compress (.Z, 1F 9D (m))
+    (b"\x28\xb5\x2f\xfd", "Zstandard-compressed", "decompress it (e.g. zstd -d)"),
+    (b"\x04\x22\x4d\x18", "LZ4-compressed", "decompress it (e.g. lz4 -d)"),
+    (b"LZIP", "lzip-compressed", "decompress it (e.g. lzip -d)"),
+    (b"\x1f\x9d", "compressed by Unix compress (.Z)", "decompress it (e.g. uncompress)"),
 )
 
 

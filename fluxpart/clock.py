@@ -125,6 +125,15 @@ STEP_TOLERANCE = 10.0
 #: :func:`shift_threshold_minutes` applies as well.
 SHORT_RUN_ROBUST_SIGMAS = 6.0
 _DAYLIGHT_SAVING_STEP = 60.0      # minutes: the daylight-saving change of the clock
+#: Months that can hold daylight-saving time, by hemisphere: in the north from the last
+#: Sunday of March (European Union) or the second Sunday of March (United States) to the
+#: last Sunday of October or the first Sunday of November; in the south from the last
+#: Sunday of September (New Zealand) or the first Sunday of October (Australia, Chile
+#: roughly) to the first Sunday of April (time-zone database rules (m)). Months a
+#: clock an hour ahead covers outside these (January to June in the north) are not
+#: summer time but a clock changed once, named by the shifted-run check instead.
+_SAVING_MONTHS = {"north": frozenset(range(3, 12)),
+                  "south": frozenset({9, 10, 11, 12, 1, 2, 3, 4})}
 
 
 def _daylength_mismatch(used: pd.DataFrame) -> np.ndarray:
@@ -670,8 +679,20 @@ def _unwrapped_shifts(used: pd.DataFrame) -> pd.DataFrame:
     return unwrapped
 
 
-def _daylight_saving(used: pd.DataFrame):
-    """Base shift and later months where the shifts form two groups one hour apart."""
+def _daylight_saving(used: pd.DataFrame, latitude: float | None = None):
+    """Base shift and later months where the shifts form two groups one hour apart.
+
+    Where `latitude` [degrees north] is given, the later months must lie in its
+    hemisphere's daylight-saving season (:data:`_SAVING_MONTHS`): a block of months an
+    hour later outside it (January to June in the north: a logger reset between local
+    time and UTC at midyear) is a clock changed once, not summer time, and
+    ``time_zone = "Area/City"`` would not mend it (layouts25).
+
+    References
+    ----------
+    Time-zone database (IANA tz) rules for the European Union, United States,
+    Australia and New Zealand (m).
+    """
     shifts = used["shift_minutes"].to_numpy()
     if len(shifts) < 4:
         return None
@@ -698,6 +719,10 @@ def _daylight_saving(used: pd.DataFrame):
     # that moves the peak by an hour shortens it by about two (see _daylength_mismatch).
     # Called daylight saving only where the later months' day length differs from the
     # others' by less than one hour, halfway between the two.
+    if latitude is not None and np.isfinite(latitude):
+        season = _SAVING_MONTHS["north" if latitude >= 0 else "south"]
+        if not high_months <= season:
+            return None
     widths = _daylength_mismatch(used)
     high_width, low_width = widths[in_high], widths[in_low]
     if (np.isfinite(high_width).any() and np.isfinite(low_width).any()
@@ -937,7 +962,7 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
     threshold = shift_threshold_minutes(interval)
     suggested = None
     status = "consistent"
-    saving = _daylight_saving(used)
+    saving = _daylight_saving(used, latitude)
     if saving is not None:
         base, later = saving
         status = "daylight_saving"

@@ -1853,6 +1853,12 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
     # the byte-order mark, also where files saved with one were joined end to end (a
     # header line starting with U+FEFF then is not the header line it repeats)
     text = text.replace("\ufeff", "")
+    # the end-of-file mark of CP/M and MS-DOS text files (Ctrl-Z, 0x1A; DOS `copy` and
+    # old logger programs write it after the last line (m)) is no content: dropped as the
+    # byte-order mark is (layouts25: it was dropped as "a record cut short or a footer",
+    # a problem in `check`, and one written right after the last value cut that value)
+    if text.rstrip("\r\n").endswith("\x1a"):
+        text = text.rstrip("\r\n").rstrip("\x1a")
     nul = text.find("\x00")
     if nul >= 0 and warnings is not None and not text[nul:].strip("\x00"):
         text = _drop_zero_tail(path, text, nul, warnings)
@@ -2315,11 +2321,31 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
                                   int(lines[0]))
         if changed:
             raise InputFileError(changed)
+        where = (f"input file {str(path)!r}: line {int(lines[row])} "
+                 f"({_shown_line(text_lines[lines[row] - 1])!r}) has "
+                 f"{_field_count(text_lines[lines[row] - 1], delimiter)} fields where the "
+                 f"header has {width}")
+        if delimiter == _WHITESPACE:
+            # blanks collapse: an empty value leaves no field and moves the values after
+            # it one column left (layouts25: the fix named was "write missing values as
+            # empty cells between delimiters", which such a file cannot hold)
+            raise InputFileError(
+                f"{where}; {len(inner)} such line(s) before the last: in a file whose fields "
+                "are separated by blanks an empty value leaves no field (the values after "
+                "it would move one column left), and a record cut short looks the same; "
+                "write each missing value as a code (e.g. -9999, listed in [input] missing) "
+                "in a copy of the file, or save it with a delimiter (\",\", \";\" or a tab)")
+        if text_lines[lines[row] - 1].lstrip().startswith(("#", "//", ";")) and not (
+                delimiter == ";" and text_lines[lines[row] - 1].lstrip().startswith(";")):
+            # a note written among the records ("# sensor cleaned"): no record cut short
+            # (layouts25: the line named a value cut mid-number)
+            raise InputFileError(
+                f"{where}: a comment line among the records (it starts with "
+                f"{text_lines[lines[row] - 1].lstrip()[:2].rstrip()!r}); {len(inner)} such "
+                "line(s) before the last. Delete them in a copy of the file (keep the notes "
+                "in a separate file)")
         raise InputFileError(
-            f"input file {str(path)!r}: line {int(lines[row])} "
-            f"({_shown_line(text_lines[lines[row] - 1])!r}) has "
-            f"{_field_count(text_lines[lines[row] - 1], delimiter)} fields where the header has "
-            f"{width}; a record cut short may hold a value cut mid-number; "
+            f"{where}; a record cut short may hold a value cut mid-number; "
             f"{len(inner)} such line(s) before the last. Complete or delete them (or a footer) "
             "in a copy of the file (write missing values as empty cells between delimiters)")
     fields = _field_count(text_lines[lines[last] - 1], delimiter)
@@ -3549,6 +3575,12 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
             hint = ("; it is a negative number in an accounting or business format ("
                     "'(1.5)' or '1.5-' for -1.5, a spreadsheet's or report's number format): "
                     "write negative numbers with a leading minus sign in a copy of the file")
+        elif cell.startswith("'") and pd.notna(pd.to_numeric(
+                cell[1:].replace(",", "." if decimal == "," else ","), errors="coerce")):
+            # a spreadsheet's mark for a number kept as text (layouts25: the hint was "add
+            # it to [input] missing", which would have blanked that one value)
+            hint = ("; it is a number with a leading apostrophe (a spreadsheet's mark for a "
+                    "number kept as text): remove the apostrophes in a copy of the file")
         elif name.startswith("nee_flag"):
             # a missing flag rejects nothing, so "add it to missing" would keep bad records
             hint = ("; site flags must be numbers (a record is kept where its flag is in "

@@ -523,6 +523,35 @@ def _numeric_clock(text: pd.Series) -> str:
     return ""
 
 
+def _impossible_date(stamp: str, time_format: str) -> str:
+    """Name a stamp that fits `time_format` but names a day its month lacks, or "".
+
+    A 29 February outside a leap year or a 31 April: a logger or script that counts the
+    days of the months wrongly (a leap year assumed, or 31 days in every month). Such a
+    record belongs to another day, the 1 March or the 28 February, and the file cannot
+    say which (layouts25: refused as a bare parse failure before).
+
+    References
+    ----------
+    Gregorian calendar: February has 29 days in years divisible by 4, except century
+    years not divisible by 400 (m); Python's ``datetime.strptime`` raises "day is out of
+    range for month" for such dates (Python documentation (m)).
+    """
+    if "%" not in time_format or time_format.upper() == "ISO8601":
+        return ""
+    try:
+        datetime.strptime(stamp.strip(), time_format)
+    except ValueError as error:
+        if "day is out of range for month" not in str(error):
+            return ""
+    else:
+        return ""
+    return (f"{stamp.strip()!r} names a day its month lacks (29 February outside a leap "
+            "year, or the 31st of a 30-day month): a logger or script that counts the days "
+            "of the months wrongly; which day the record belongs to (the day before or the "
+            "day after) the file cannot say, so correct that stamp in a copy of the file")
+
+
 def _serial_date_column(text: pd.Series, time_columns) -> str:
     """Name a date column of spreadsheet day numbers beside a time column ("44348 0030":
     a sheet's date cells saved as numbers), or "".
@@ -907,6 +936,14 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = ("; the stamps are spreadsheet formulas (=\"...\", written to keep a "
                     "cell as text), not stamps: write them without the = and the quotes in a "
                     "copy of the file (the sheet's values, not its formulas)")
+        elif text[failed].str.strip().str.fullmatch(r"'[^']*'").all():
+            # a program that quotes text with apostrophes (SQL and some scripting
+            # exports): CSV quotes with double quotes only (RFC 4180 section 2 (m))
+            hint = ("; the stamps are wrapped in single quotes ('...'), which are no CSV "
+                    "quotes (those are double quotes, \"...\"): remove the single quotes "
+                    "in a copy of the file, or write double quotes")
+        elif _impossible_date(text.iloc[first], time_format):
+            hint = "; " + _impossible_date(text.iloc[first], time_format)
         elif (not isinstance(time_columns, str) and len(time_columns) > 1
               and "%H:%M" in time_format
               and text[failed].str.strip().str.fullmatch(r".*\s\d{1,4}").all()):
