@@ -22,6 +22,7 @@ import pytest
 from bundles import make_bundle
 
 distributed = pytest.importorskip("distributed")
+import dask  # noqa: E402  (a dependency of distributed)
 
 from fluxpart import batch  # noqa: E402
 from fluxpart.cli import main  # noqa: E402
@@ -58,7 +59,9 @@ def test_a_scheduler_lost_mid_batch_fails_the_waiting_sites_by_name(tmp_path):
         while not scheduler_file.exists() and time.monotonic() < deadline:
             time.sleep(0.2)
         reports: list = []
-        with distributed.Client(scheduler_file=str(scheduler_file), timeout=30) as probe:
+        before = dask.config.get("scheduler", None)
+        with distributed.Client(scheduler_file=str(scheduler_file), timeout=30,
+                                set_as_default=False) as probe:
             address = probe.scheduler.address
             running = threading.Thread(target=lambda: reports.append(
                 batch.run_batch(sites, scheduler=address)), daemon=True)
@@ -80,6 +83,10 @@ def test_a_scheduler_lost_mid_batch_fails_the_waiting_sites_by_name(tmp_path):
         assert not (report.out / outcome.key).exists()     # nothing computed, nothing made
     assert (report.out / "failures.parquet").is_file()
     assert (report.out / "network.json").is_file()
+    # the caller's dask settings as they were (0.24.0: the lost client had left the process
+    # set to a distributed scheduler with none active, and a later dask computation, such
+    # as an xarray export, failed "no Client active")
+    assert dask.config.get("scheduler", None) == before
 
 
 def test_the_scheduler_lost_message_names_the_folder_state():
