@@ -83,9 +83,9 @@ def test_a_scheduler_lost_mid_batch_fails_the_waiting_sites_by_name(tmp_path):
         assert not (report.out / outcome.key).exists()     # nothing computed, nothing made
     assert (report.out / "failures.parquet").is_file()
     assert (report.out / "network.json").is_file()
-    # the caller's dask settings as they were (0.24.0: the lost client had left the process
-    # set to a distributed scheduler with none active, and a later dask computation, such
-    # as an xarray export, failed "no Client active")
+    # the caller's dask settings as they were: a default client lost with its scheduler
+    # leaves the process set to a distributed scheduler with none active, and a later dask
+    # computation (an xarray export) fails "no Client active" (this test's own probe did)
     assert dask.config.get("scheduler", None) == before
 
 
