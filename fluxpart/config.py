@@ -59,7 +59,9 @@ class Config:
         :func:`fluxpart.ustar.nearest_detected_year`; since 0.20.0, where no season of any
         year gives one, each year's night records pooled as one season first,
         :func:`fluxpart.ustar.detect_threshold`). 0.2 m s-1 is our choice, a value
-        typical of the thresholds reported for forests and grasslands (m).
+        typical of the thresholds reported for forests and grasslands (m). A site config with
+        ``ustar_method = "fixed"`` must give it (refused without, since 0.24.0): the
+        default is the fall-back, not a site's value.
     ustar_temperature_classes : int
         Moving point test: night data of a season split into this many temperature
         classes of equal size; 6, Reichstein et al. (2005) (m).

@@ -29,12 +29,57 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from .units import flux_to_carbon
+
 #: Gaps longer than this [days] get the two one-sided fills. Marginal distribution
 #: sampling first looks for donors within ±7 days (Reichstein et al. 2005): in a gap of
 #: up to 14 days every record has measured records of one side that close, so its fill
 #: describes the canopy of the days around it; beyond, the middle of the gap is filled
 #: from a canopy at least a week away on both sides.
 MIN_GAP_DAYS = 14.0
+
+
+def gap_runs(missing) -> tuple[np.ndarray, np.ndarray]:
+    """Start positions and lengths of the runs of True in a boolean array.
+
+    Parameters
+    ----------
+    missing : array_like of bool
+        True where a record is missing.
+
+    Returns
+    -------
+    starts, lengths : numpy.ndarray of int
+        Position of the first record of each run and its length [records].
+
+    References
+    ----------
+    None: elementary run-length encoding (common practice).
+    """
+    missing = np.asarray(missing, dtype=bool)
+    edges = np.diff(np.concatenate([[0], missing.astype(np.int8), [0]]))
+    starts = np.flatnonzero(edges == 1)
+    return starts, np.flatnonzero(edges == -1) - starts
+
+
+def run_ids(mask) -> np.ndarray:
+    """Number of the run of True each record belongs to (0, 1, ...); -1 outside runs.
+
+    Parameters
+    ----------
+    mask : array_like of bool
+
+    Returns
+    -------
+    numpy.ndarray of int
+
+    References
+    ----------
+    None: elementary run-length encoding (common practice).
+    """
+    mask = np.asarray(mask, dtype=bool)
+    starts = np.diff(np.concatenate([[0], mask.astype(np.int8)])) == 1
+    return np.where(mask, np.cumsum(starts) - 1, -1)
 
 
 def long_gaps(filled, records_per_day: int, min_days: float = MIN_GAP_DAYS, breaks=None):
@@ -62,10 +107,7 @@ def long_gaps(filled, records_per_day: int, min_days: float = MIN_GAP_DAYS, brea
     ----------
     Reichstein et al. (2005); Richardson & Hollinger (2007): see the module docstring.
     """
-    filled = np.asarray(filled, dtype=bool)
-    edges = np.diff(np.concatenate([[0], filled.astype(np.int8), [0]]))
-    starts = np.flatnonzero(edges == 1)
-    lengths = np.flatnonzero(edges == -1) - starts
+    starts, lengths = gap_runs(filled)
     keep = lengths > float(min_days) * int(records_per_day)
     if breaks is not None and len(breaks):
         cuts = np.asarray(breaks, dtype=np.int64)
@@ -195,11 +237,7 @@ def state_change_variance(fill, before, after, codes, periods: int, records=None
         return np.zeros(periods)
     # gap number of each record (runs of the long gaps' records), then one group per gap
     # and period
-    if groups is None:
-        starts = np.diff(np.concatenate([[0], span.astype(np.int8)])) == 1
-        gap = np.cumsum(starts) - 1
-    else:
-        gap = np.asarray(groups, dtype=np.int64)
+    gap = run_ids(span) if groups is None else np.asarray(groups, dtype=np.int64)
     # where each part lies in its gap: the shares p0 .. p1 of the gap's records (all of
     # them, whether counted or not), from the first and last record of the part
     span_gap = gap[span]
@@ -274,11 +312,10 @@ def state_change_notes(index, fill, before, after, interval_minutes: int,
     after = np.asarray(after, dtype=float)
     years = (np.asarray(pd.DatetimeIndex(index).year, dtype=np.int64) if year_keys is None
              else np.asarray(year_keys, dtype=np.int64))
-    grams = float(interval_minutes) * 60.0 * 12.011e-6      # g C m-2 per (µmol m-2 s-1)
-    in_gap = np.isfinite(before) | np.isfinite(after)
-    edges = np.diff(np.concatenate([[0], in_gap.astype(np.int8), [0]]))
+    grams = float(flux_to_carbon(1.0, interval_minutes))   # g C m-2 per (µmol m-2 s-1)
     notes = []
-    for start, end in zip(np.flatnonzero(edges == 1), np.flatnonzero(edges == -1), strict=True):
+    for start, length in zip(*gap_runs(np.isfinite(before) | np.isfinite(after)), strict=True):
+        end = start + length
         part = slice(start, end)
         central = fill[part]
         if not np.isfinite(central).any():

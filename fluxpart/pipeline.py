@@ -1100,7 +1100,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
             timeseries["nee_filled"].to_numpy(dtype=float)), respiration_form=form,
         day_driver_statistic=None if day_evidence is None else day_evidence[0],
         day_evidence_critical=temperature_choice.DAYTIME_EVIDENCE_Z,
-        fill_sides=sides, daytime_result=None if method_failure.failed(day) else day,
+        fill_sides=sides, daytime_result=day,
         **_event_cut(index, config))
     notes = []
     if (other_reco is not None and day_evidence is not None and inputs.driver_weight == 0.5

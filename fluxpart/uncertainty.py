@@ -72,6 +72,7 @@ from .errors import (
     MissingColumnError,
     SpacingError,
 )
+from .gap_sides import gap_runs, run_ids
 from .partition import pieces
 from .schema import NOT_QUANTIFIED, RANDOM_ERROR_MODEL_COLUMNS, UNCERTAINTY_COLUMNS
 
@@ -717,37 +718,11 @@ def monte_carlo_sums(sigma, index, interval_minutes, *, draws=_DRAWS, seed=0,
 
 # --------------------------------------------------------------------------- gap filling
 
-def gap_runs(missing) -> tuple[np.ndarray, np.ndarray]:
-    """Start positions and lengths of the runs of True in a boolean array.
-
-    Parameters
-    ----------
-    missing : array_like of bool
-        True where a record is missing.
-
-    Returns
-    -------
-    starts, lengths : numpy.ndarray of int
-        Position of the first record of each run and its length [records].
-    """
-    missing = np.asarray(missing, dtype=bool)
-    edges = np.diff(np.concatenate([[0], missing.astype(np.int8), [0]]))
-    starts = np.flatnonzero(edges == 1)
-    return starts, np.flatnonzero(edges == -1) - starts
-
-
-def _run_ids(mask) -> np.ndarray:
-    """Number of the run of True each record belongs to (0, 1, ...); -1 outside runs."""
-    mask = np.asarray(mask, dtype=bool)
-    starts = np.diff(np.concatenate([[0], mask.astype(np.int8)])) == 1
-    return np.where(mask, np.cumsum(starts) - 1, -1)
-
-
 def _block_ids(mask, block_records: int) -> np.ndarray:
     """Number of the block each record belongs to, the runs of True cut into blocks of
     `block_records` from each run's start (0, 1, ... in time order); -1 outside runs."""
     mask = np.asarray(mask, dtype=bool)
-    run = _run_ids(mask)
+    run = run_ids(mask)
     starts = np.flatnonzero(np.diff(np.concatenate([[0], mask.astype(np.int8)])) == 1)
     offset = np.arange(mask.size) - starts[np.maximum(run, 0)] if starts.size else run
     begins = mask & (offset % max(int(block_records), 1) == 0)
@@ -935,7 +910,7 @@ def artificial_gap_errors(nee_measured, noise_sigma, is_night, fill, *, rounds=_
         held = mask & measured
         filled = np.asarray(fill(np.where(mask, np.nan, nee), hidden), dtype=float)
         error = np.where(held, filled - nee, 0.0)
-        gap_id = _run_ids(mask)
+        gap_id = run_ids(mask)
         # a gap longer than a day is scored by blocks of 7 days (gapfill_error_model)
         unit = _block_ids(mask, int(_NEIGHBOUR_DAYS * per_day)) if is_long else gap_id
         first = np.flatnonzero(np.diff(np.concatenate([[-1], unit])) != 0)
@@ -2413,7 +2388,7 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             return (independent + correlated + between_blocks + neighbours + donors) \
                 * factor**2 + squared_bias, bias, bias_se
 
-        gap_id = _run_ids(filled)
+        gap_id = run_ids(filled)
         records_per_day = _MINUTES_PER_DAY // int(interval_minutes)
         gap_length = np.bincount(gap_id[filled], minlength=1)     # minlength: no filled record
         long_gap = filled & (gap_length[np.maximum(gap_id, 0)] > records_per_day)
