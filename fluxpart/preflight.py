@@ -671,21 +671,18 @@ def _copied_run(values: np.ndarray, interval_minutes: float) -> tuple | None:
     first = pd.Series(order).groupby(codes).transform("min").to_numpy()
     lag = positions[order] - positions[first]
     copied = (first < order) & (order - first >= width)
+    # runs: maximal stretches of copied keys at one lag (found at once, not key by key)
+    key = np.where(copied, lag, -1)
+    bounds = np.flatnonzero(np.diff(key, prepend=-2, append=-2) != 0)
     best = None
-    start = 0
-    while start < codes.size:
-        if not copied[start]:
-            start += 1
-            continue
-        end = start + 1
-        while end < codes.size and copied[end] and lag[end] == lag[start]:
-            end += 1
+    for start, end in zip(bounds[:-1], bounds[1:], strict=True):
+        if key[start] < 0 or end - start - 1 + width < needed:
+            continue                    # not copied, or too short to hold `needed` records
         records = positions[start:end - 1 + width]
         if (records.size >= needed and np.unique(values[records]).size >= needed / 2
                 and np.array_equal(values[records], values[records - lag[start]])
                 and (best is None or records.size > best[1].size)):
             best = (int(lag[start]), records)
-        start = end
     return best
 
 
