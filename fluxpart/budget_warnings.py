@@ -94,7 +94,9 @@ def _unmeasured_months_warning(year, row, timeseries, in_year) -> list:
     complete = ", although the year is complete" if bool(row.get("complete", False)) else ""
     checked = ("the stated 95 % intervals' coverage was measured on site-years whose "
                "outages last up to three weeks (DEVELOPERS.md, calibration and outage "
-               "benchmarks), not on such months: they are no calibrated interval for them")
+               "benchmarks), not on such months: they are no calibrated interval for them "
+               "(the daytime method's carry no gap-filling part, although its light "
+               "responses there come from windows of other months)")
     if not (quality == 0).any():
         return [f"{year}: no measured NEE in any of its records {where}: every NEE value is "
                 "filled from the records of other years, and its GPP and Reco rest on those "

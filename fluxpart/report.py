@@ -338,7 +338,8 @@ def _unmeasured_note(written: Written, label, mask) -> str:
             "or years and partitioned on those fills, so the sums above are model output "
             "there, not measurements, and the 95 % intervals were not checked on months "
             "without a measured record (their coverage was measured on outages of up to "
-            "three weeks).</p>")
+            "three weeks; the daytime method's carry no gap-filling part, although its "
+            "light responses there come from windows of other months).</p>")
 
 
 def _summary_card(written: Written) -> tuple[str, bool]:
