@@ -351,7 +351,7 @@ def _line_place(spaced: str, places: dict) -> set:
     after the words ("Period start 2021-01-01 00:00") dates the record instead, and a
     line naming another place word too ("period start and end in UTC") is left unread.
     Before round review30 every such line was left unread, and a file stating "Period
-    start" over its start stamps was read half an interval late under time_marks = "end".
+    start" over its start stamps was read one interval early under time_marks = "end".
     """
     matches = list(_LINE_PLACE.finditer(spaced))
     if len(matches) != 1:
