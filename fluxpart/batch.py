@@ -315,7 +315,13 @@ def read_sites_file(path) -> NetworkFile:
     -----
     A pattern keeps only files ending in ``.toml``, other than the network file
     itself and other network files (a ``[batch]`` table); a plain path is taken as
-    written. Matches of each pattern are sorted; a config listed twice is kept once. A site's key is its config's file stem (characters other than letters,
+    written. Matches of each pattern are sorted; a config listed twice is kept once.
+    Relative paths are read from the folder of the path as written, a symbolic link's
+    own folder, not its target's: the network file's ``sites`` and ``out``, and each
+    site config's ``[input] path`` (as ``fluxpart run`` and ``check`` read it), so site
+    configs that are links to one shared config are one site each, reading the input
+    beside their own link (round review30; they were one site, reading the input
+    beside the shared file). A site's key is its config's file stem (characters other than letters,
     digits, ``.``, ``_`` and ``-`` become ``_``); stems that occur more than once
     are prefixed with their folder's name (``north/tower.toml`` ->
     ``north-tower``), and a key still taken gets ``-2``, ``-3``, ... Keys are
@@ -334,7 +340,9 @@ def read_sites_file(path) -> NetworkFile:
     for key in table:
         if key not in _BATCH_KEYS:
             raise ConfigError(f"[batch] {key}: unknown setting{suggest_key(key, _BATCH_KEYS)}")
-    base = path.resolve().parent
+    # the link's own folder, not its target's (POSIX path resolution of a relative name
+    # read from a file's content, as io.read_site_config reads [input] path)
+    base = _as_given(path).parent
     out = table.get("out", f"{path.stem}-output")
     if not isinstance(out, str) or not out.strip():
         raise ConfigError(f"[batch] out = {out!r}: expected a folder path (a string, relative "
@@ -396,11 +404,28 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
             raise ConfigError(f"{where}: no such file {str(full)!r}"
                               f"{other_system_path_hint(pattern)}")
         for match in matches:
-            resolved = match.resolve()
-            if resolved not in seen:
-                seen.add(resolved)
-                configs.append(resolved)
+            given = _as_given(match)
+            if given not in seen:
+                seen.add(given)
+                configs.append(given)
     return configs
+
+
+def _as_given(path) -> Path:
+    """`path` made absolute without following symbolic links (``os.path.abspath``).
+
+    A site config's relative ``[input] path`` is read from the folder of the config as
+    given (:func:`fluxpart.io.read_site_config`); resolving a linked config to its
+    target would read it from the target's folder in a batch but from the link's in
+    ``fluxpart run``, and several links to one shared config would be one site.
+
+    References
+    ----------
+    Linux man-pages, path_resolution(7) and symlink(7): a relative name found in a
+    file's content is resolved by the program reading it, here against the folder of
+    the path as given (m).
+    """
+    return Path(os.path.abspath(path))
 
 
 def _is_network_file(path) -> bool:

@@ -12,6 +12,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from .measured_months import month_runs_text, unmeasured_months
+
 __all__ = ["budget_year_warnings"]
 
 
@@ -45,8 +47,9 @@ def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_ke
     -------
     list of str
         One text per finding: a partial year, NEE records left unfilled, partitioned sums
-        NaN for want of a driver or parameters, uncertainty parts left out of the
-        intervals (``uncertainty_parts_missing``).
+        NaN for want of a driver or parameters, months without a measured NEE record
+        (their sums modelled; the intervals not checked there), uncertainty parts left out
+        of the intervals (``uncertainty_parts_missing``).
     """
     keys = np.asarray(year_keys)
     out = []
@@ -66,8 +69,53 @@ def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_ke
         if row["records_unfilled"] > 0:
             out.append(_unfilled_warning(year, row, annual, timeseries, in_year, config, fluxes))
         out.extend(_modelled_sums_missing(year, row, timeseries, in_year, config, failed))
+        out.extend(_unmeasured_months_warning(year, row, timeseries, in_year))
         out.extend(_uncertainty_parts_missing(year, row, config, failed))
     return out
+
+
+def _unmeasured_months_warning(year, row, timeseries, in_year) -> list:
+    """Name the months of a budget year that hold no measured NEE record.
+
+    Such a year is ``complete`` in the annual table (every record present and filled)
+    and its 95 % intervals are stated, yet its sums over those months are model output
+    (:mod:`fluxpart.measured_months`); before round review30 only the gap-filling warning
+    and ``share_measured`` told.
+    """
+    if "nee_fill_quality" not in timeseries.columns or not in_year.any():
+        return []
+    quality = timeseries["nee_fill_quality"].to_numpy()[in_year]
+    stamps = timeseries.index[in_year]
+    months = unmeasured_months(stamps, quality == 0)
+    if not months:
+        return []
+    where = f"({month_runs_text(months)})"
+    # the annual table calls such a year complete (every record present and filled)
+    complete = ", although the year is complete" if bool(row.get("complete", False)) else ""
+    checked = ("the stated 95 % intervals' coverage was measured on site-years whose "
+               "outages last up to three weeks (DEVELOPERS.md, calibration and outage "
+               "benchmarks), not on such months: they are no calibrated interval for them "
+               "(the daytime method's carry no gap-filling part, although its light "
+               "responses there come from windows of other months)")
+    if not (quality == 0).any():
+        return [f"{year}: no measured NEE in any of its records {where}: every NEE value is "
+                "filled from the records of other years, and its GPP and Reco rest on those "
+                "fills and on parameters fitted elsewhere; its sums are model output, not a "
+                f"measured budget{complete}; {checked} (share_measured "
+                "0 in annual.parquet)"]
+    keys = np.asarray(stamps.year, dtype=np.int64) * 12 + np.asarray(stamps.month) - 1
+    inside = np.isin(keys, [month.year * 12 + month.month - 1 for month in months])
+    total = np.unique(keys).size
+    nee = (np.abs(timeseries["nee_filled"].to_numpy(dtype=float)[in_year])
+           if "nee_filled" in timeseries.columns else np.full(stamps.size, np.nan))
+    finite = np.isfinite(nee)
+    share = (f", {100 * nee[inside & finite].sum() / nee[finite].sum():.0f} % of the "
+             "year's sum of |NEE|" if finite.any() and nee[finite].sum() > 0 else "")
+    return [f"{year}: {len(months)} of its {total} months hold no measured NEE {where}"
+            f"{share}: their NEE is filled from the records of other months or years, and "
+            "their GPP and Reco rest on those fills; the year's sums over them are model "
+            f"output, not measured{complete}; {checked} "
+            "(share_measured 0 in monthly.parquet)"]
 
 
 def _uncertainty_parts_missing(year, row, config, failed=()) -> list:

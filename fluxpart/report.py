@@ -50,12 +50,14 @@ from .figures import (
     Written,
     clock_sentence,
     draw_figures,
+    fill_category,
     interval_minutes,
     period_masks,
     unfitted_methods,
     window_status,
 )
 from .manifest import CAUTION, shown_name
+from .measured_months import month_runs_text, unmeasured_months
 from .resultdir import (
     DEFAULT_LOCK_TIMEOUT,
     clean_leftovers,
@@ -312,6 +314,34 @@ def _uncertainty_fact(parts: pd.DataFrame | None, label) -> str:
     return _e(" ".join(sentences))
 
 
+def _unmeasured_note(written: Written, label, mask) -> str:
+    """The card's caution where months of the period hold no measured NEE record.
+
+    Such a period is complete (every record filled) and its 95 % intervals are written,
+    but its sums over those months are model output and the intervals were not checked
+    there (:mod:`fluxpart.measured_months`; round review30). Read from the written time
+    series, so older result folders get it too; nothing where the fill quality is absent.
+    """
+    series = written.timeseries
+    if "nee_fill_quality" not in series.columns or not np.any(mask):
+        return ""
+    measured = fill_category(series["nee_fill_quality"].to_numpy()[mask]) == "measured"
+    months = unmeasured_months(series.index[mask], measured)
+    if not months:
+        return ""
+    total = len(unmeasured_months(series.index[mask], np.zeros(int(np.sum(mask)), bool)))
+    what = ("No NEE was measured in this period" if not measured.any() else
+            f"No NEE was measured in {len(months)} of its {total} months")
+    return (f'<p class="caution" data-summary="unmeasured_months" data-year="{_e(label)}" '
+            f'data-value="{len(months)}"><strong>{what}</strong> '
+            f"({_e(month_runs_text(months))}): those months are gap-filled from other months "
+            "or years and partitioned on those fills, so the sums above are model output "
+            "there, not measurements, and the 95 % intervals were not checked on months "
+            "without a measured record (their coverage was measured on outages of up to "
+            "three weeks; the daytime method's carry no gap-filling part, although its "
+            "light responses there come from windows of other months).</p>")
+
+
 def _summary_card(written: Written) -> tuple[str, bool]:
     """The summary per budget period; also whether a combined (non-95 %) uncertainty is shown."""
     annual = written.annual
@@ -355,6 +385,7 @@ def _summary_card(written: Written) -> tuple[str, bool]:
             f"({_interval_html(kind, low, high, 1, 'nee', label, row)}), a net uptake of "
             f"{_number(uptake, 2, 'net_uptake_t_co2_per_ha', label, 't CO2 ha-1')} "
             f"({t_interval}).</p>")
+        headline += _unmeasured_note(written, label, periods[label][3])
         flux_rows = []
         for part in ("gpp", "reco"):
             cells = []

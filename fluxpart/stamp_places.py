@@ -329,7 +329,38 @@ def stated_place(text: str, cell: bool = False) -> str | None:
         for m in _CELL_PLACE.finditer(spaced):
             word = m.group(1) or m.group(2) or m.group(3)
             found.add(places.get(word, word))
+    elif not found:
+        found |= _line_place(spaced, places)
     return found.pop() if len(found) == 1 else None
+
+
+#: "period start", "interval end", "averaging period start" on a line above the header
+_LINE_PLACE = re.compile(r"\b(?:interval|period|averaging)\s+"
+                         r"(start|beginning|begin|end|middle|centre|center|midpoint)\b")
+#: any place word, to leave a line naming two places ("period start and end") unread
+_ANY_PLACE = re.compile(r"(?<![a-z])(start|beginning|begin|end|middle|centre|center|"
+                        r"midpoint)(?![a-z])")
+
+
+def _line_place(spaced: str, places: dict) -> set:
+    """The place a line above the header states as "period start" or "interval end".
+
+    Such a line is a statement of the stamps' place ("Period start", "Time: interval
+    end", "Time convention: averaging period start") only where nothing dates it: a
+    key followed by a value ("Period start: 2021-01-01", "Period start =") or a digit
+    after the words ("Period start 2021-01-01 00:00") dates the record instead, and a
+    line naming another place word too ("period start and end in UTC") is left unread.
+    Before round review30 every such line was left unread, and a file stating "Period
+    start" over its start stamps was read one interval early under time_marks = "end".
+    """
+    matches = list(_LINE_PLACE.finditer(spaced))
+    if len(matches) != 1:
+        return set()
+    after = spaced[matches[0].end():]
+    if re.search(r"\d", after) or re.match(r"\s*(?:time\s*)?[:=]", after):
+        return set()
+    words = {places.get(m.group(1), m.group(1)) for m in _ANY_PLACE.finditer(spaced)}
+    return words if len(words) == 1 else set()
 
 
 def stated_offset(text: str) -> float | None:

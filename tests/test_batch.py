@@ -13,6 +13,7 @@ import hashlib
 import io
 import json
 import os
+import shutil
 import subprocess
 import sys
 import time
@@ -913,3 +914,38 @@ def test_sites_computed_with_different_settings_are_warned_about(tmp_path):
     assert "ustar_method" in warnings[0] and "\"fixed\" at 'west'" in warnings[0]
     assert "'east', 'north', 'south'" in warnings[0]
     assert "events" not in warnings[0] and "year_start" not in warnings[0]
+
+
+def test_linked_site_configs_read_the_input_beside_their_own_link(tmp_path):
+    """A shared site config linked into each site's folder (`a/site.toml ->
+    ../shared/site.toml`, `path = "tower.csv"`): `fluxpart run a/site.toml` reads
+    `a/tower.csv` (the link's folder, POSIX path resolution of a relative name read from
+    a file's content (m)), but `batch` resolved the link first, so both links were one
+    site reading `shared/tower.csv`. Now each link is its own site reading its own input,
+    as `run` reads it; the network file's relative paths likewise from its own link."""
+    from fluxpart.io import read_site_config
+
+    config = write_example(tmp_path / "shared")
+    text = config.read_text(encoding="utf-8").replace(
+        'path = "quillmoor_grassland.csv"', 'path = "tower.csv"')
+    config.write_text(text, encoding="utf-8")
+    for name in ("a", "b"):
+        (tmp_path / name).mkdir()
+        shutil.copy(config.with_suffix(".csv"), tmp_path / name / "tower.csv")
+        try:
+            (tmp_path / name / "site.toml").symlink_to(Path("..") / "shared" / config.name)
+        except OSError:
+            pytest.skip("no symbolic links on this file system")
+    elsewhere = tmp_path / "elsewhere"
+    elsewhere.mkdir()
+    (elsewhere / "network.toml").write_text('[batch]\nsites = ["*/site.toml"]\nout = "net"\n',
+                                            encoding="utf-8")
+    (tmp_path / "network.toml").symlink_to(elsewhere / "network.toml")
+    network = batch.read_sites_file(tmp_path / "network.toml")
+    assert network.out == tmp_path / "net"
+    assert [key for key, _ in network.sites] == ["a-site", "b-site"]
+    for (_, site_config), name in zip(network.sites, ("a", "b"), strict=True):
+        assert site_config == tmp_path / name / "site.toml"
+        batch_reads = read_site_config(site_config).input_paths
+        run_reads = read_site_config(tmp_path / name / "site.toml").input_paths
+        assert batch_reads == run_reads == (tmp_path / name / "tower.csv",)

@@ -63,3 +63,82 @@ def test_unfilled_records_with_events_are_named_as_unfillable_in_the_whole_recor
         text = _unfilled_warning(2021, row, annual, timeseries, in_year,
                                  Config(events=events), ["nee"])
         assert text == plain
+
+
+def _year(measured_from=None, measured=True):
+    """An invented calendar year of 30-min records, |NEE| 1 everywhere, measured from
+    `measured_from` on (or nowhere, or everywhere)."""
+    import numpy as np
+
+    index = pd.date_range("2021-01-01", "2021-12-31 23:30", freq="30min")
+    quality = np.full(index.size, 0 if measured else 3)
+    if measured_from is not None:
+        quality[index < pd.Timestamp(measured_from)] = 3
+    timeseries = pd.DataFrame({"nee_filled": -1.0, "nee_fill_quality": quality}, index=index)
+    row = pd.Series({"complete": True})
+    return timeseries, row, np.ones(index.size, dtype=bool)
+
+
+def test_months_without_measured_nee_are_named_with_their_share_of_the_year():
+    """Known truth on an invented year (a tower installed on 1 September): such a year was
+    `complete` in the annual table, its 95 % intervals stated, and only the gap-filling
+    warning and share_measured told that eight months were invented. The warning names
+    the months and their share of the year's |NEE|: January–August 2021 hold 243 of its
+    365 days (the standard library's calendar.monthrange), so 67 % of a constant flux."""
+    import calendar
+
+    from fluxpart.budget_warnings import _unmeasured_months_warning
+
+    days = sum(calendar.monthrange(2021, month)[1] for month in range(1, 9))
+    assert days == 243
+    timeseries, row, in_year = _year("2021-09-01")
+    (text,) = _unmeasured_months_warning(2021, row, timeseries, in_year)
+    assert text.startswith("2021: 8 of its 12 months hold no measured NEE (2021-01 to "
+                           f"2021-08), {100 * days / 365:.0f} % of the year's sum of |NEE|")
+    assert "model output" in text and "although the year is complete" in text
+    assert "no calibrated interval" in text
+    # a year measured in every month (one record in March is enough for March) is not named
+    timeseries, row, in_year = _year()
+    assert _unmeasured_months_warning(2021, row, timeseries, in_year) == []
+    timeseries, row, in_year = _year("2021-03-31 23:30")
+    timeseries.loc["2021-01-15 12:00", "nee_fill_quality"] = 0
+    timeseries.loc["2021-02-15 12:00", "nee_fill_quality"] = 0
+    timeseries.loc["2021-03-31 23:30", "nee_fill_quality"] = 0
+    assert _unmeasured_months_warning(2021, row, timeseries, in_year) == []
+    # months apart are written apart
+    timeseries.loc[timeseries.index.month.isin([2, 5, 6]), "nee_fill_quality"] = 3
+    (text,) = _unmeasured_months_warning(2021, row, timeseries, in_year)
+    assert "3 of its 12 months hold no measured NEE (2021-02, 2021-05 to 2021-06)" in text
+
+
+def test_a_year_without_any_measured_nee_is_named_as_model_output():
+    """Known truth on an invented year with no measured NEE at all (a second year of
+    drivers beside a first year of fluxes): said to be model output, not a measured
+    budget, and its intervals no calibrated interval for it."""
+    from fluxpart.budget_warnings import _unmeasured_months_warning
+
+    timeseries, row, in_year = _year(measured=False)
+    (text,) = _unmeasured_months_warning(2022, row, timeseries, in_year)
+    assert text.startswith("2022: no measured NEE in any of its records (2021-01 to 2021-12)")
+    assert "not a measured budget, although the year is complete" in text
+    (text,) = _unmeasured_months_warning(2022, pd.Series({"complete": False}), timeseries,
+                                         in_year)
+    assert "although the year is complete" not in text
+
+
+def test_unmeasured_months_follow_the_calendar():
+    """fluxpart.measured_months against pandas' own monthly periods (Period.month): the
+    months of the records with no measured one, leap day and a budget year from July."""
+    import numpy as np
+
+    from fluxpart.measured_months import month_runs_text, unmeasured_months
+
+    index = pd.date_range("2023-07-01", "2024-06-30 23:30", freq="30min")
+    measured = np.isin(index.month, [7, 8, 12, 1, 3])
+    months = unmeasured_months(index, measured)
+    expected = sorted(set(index.to_period("M")) - set(index[measured].to_period("M")))
+    assert months == expected
+    assert month_runs_text(months) == "2023-09 to 2023-11, 2024-02, 2024-04 to 2024-06"
+    assert unmeasured_months(index[:0], measured[:0]) == []
+    with pytest.raises(ValueError, match="one per stamp"):
+        unmeasured_months(index, measured[:5])

@@ -812,7 +812,8 @@ def test_unchecked_values_are_marked_once_in_the_settings_table(folder):
 def test_report_modules_import_no_pipeline_or_method_module():
     """The report reads the folder only: its modules import no pipeline or method module."""
     allowed = {"config", "constants", "errors", "figures", "manifest", "store", "units",
-               "responses", "progress", "resultdir", "fingerprint", "uncertainty_parts"}
+               "responses", "progress", "resultdir", "fingerprint", "uncertainty_parts",
+               "measured_months"}
     root = Path(fluxpart.__file__).parent
     for name in ("report.py", "figures.py"):
         tree = ast.parse((root / name).read_text(encoding="utf-8"))
@@ -1333,3 +1334,39 @@ def test_methods_name_the_soil_regressor_of_night_fills_only_where_it_was_used()
     assert "soil temperature" in gap_filling_item(local, True)
     assert "soil temperature" not in gap_filling_item(local, False)
     assert "soil temperature" not in gap_filling_item({"gapfill_estimate": "donor_mean"}, True)
+
+
+def test_the_card_says_which_months_hold_no_measured_nee():
+    """Known truth on an invented year whose NEE is measured from 1 September only (the
+    labels as a written time series stores them): the card showed the year's sum with
+    "95 % interval" and nothing but the gap-filled share (82 %) said that eight months
+    were invented. Now a caution names the months, says their sums are model output and
+    that the intervals were not checked on such months; a year measured in every month
+    has no such caution (the months by pandas' monthly periods)."""
+    index = pd.date_range("2021-01-01", "2021-12-31 23:30", freq="30min")
+    measured = index >= pd.Timestamp("2021-09-01")
+    quality = pd.Categorical(np.where(measured, "measured", "C"))
+    unmeasured = sorted(set(index.to_period("M")) - set(index[measured].to_period("M")))
+    assert len(unmeasured) == 8
+    annual = pd.DataFrame({"nee": [-150.0], "nee_ci95_low": [-900.0], "nee_ci95_high": [600.0],
+                           "ustar_threshold": [0.15]}, index=pd.Index([2021], name="year"))
+
+    def card(fill_quality):
+        written = Written(manifest={}, tables={
+            "timeseries": pd.DataFrame({"nee_filled": -0.5, "nee_fill_quality": fill_quality},
+                                       index=index),
+            "annual": annual, "ustar": pd.DataFrame()})
+        summary, _ = report._summary_card(written)
+        return summary
+
+    summary = card(quality)
+    note = re.search(r'<p class="caution" data-summary="unmeasured_months" data-year="2021" '
+                     r'data-value="(\d+)">(.*?)</p>', summary)
+    assert note is not None and int(note.group(1)) == len(unmeasured)
+    text = html.unescape(re.sub(r"<[^>]+>", "", note.group(2)))
+    assert text.startswith("No NEE was measured in 8 of its 12 months (2021-01 to 2021-08)")
+    assert "model output" in text and "not checked" in text
+    # integer codes (0 = measured) as older folders may hold them read alike
+    assert 'data-value="8"' in card(np.where(measured, 0, 3))
+    assert "unmeasured_months" not in card(pd.Categorical(np.full(index.size, "measured")))
+    assert "No NEE was measured in this period" in card(pd.Categorical(np.full(index.size, "C")))

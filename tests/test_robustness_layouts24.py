@@ -293,3 +293,47 @@ def test_start_stamps_stated_in_a_title_line_are_refused(tmp_path):
                           time_format="%Y-%m-%d %H:%M", time_marks="start",
                           units={"vpd": "hPa"}, site=SITE, rows_before_header=2)
     assert frame.index[0] == starts[0]
+
+
+@pytest.mark.parametrize(("text", "expected"), [
+    # a line above the header stating the stamps' place as "period start" with nothing
+    # dating it (common practice of logger and export headers): read since round review30
+    ("Period start", "start"),
+    ("# Time: interval end", "end"),
+    ("Time convention: averaging period start", "start"),
+    ("Period start time", "start"),
+    # a key with a value, or a date after the words, dates the record instead; a line
+    # naming two places states none
+    ("Period start: 2021-01-01", None),
+    ("Period start:", None),
+    ("Period start 2021-01-01 00:00", None),
+    ("Reporting period start = 1 Jan 2021", None),
+    ("Period start and end in UTC", None),
+    ("Period start/end", None),
+])
+def test_a_period_start_line_without_a_date_states_the_place(text, expected):
+    assert stated_place(text) == expected
+
+
+def test_start_stamps_under_a_period_start_line_are_refused_as_ends(tmp_path):
+    """Known truth (invented records): interval starts under a title line "Period start"
+    read with time_marks = "end" were read every record 30 minutes early without a word
+    from the reader (the clock check then stopped `run` naming time_marks, not the
+    file's line). Now one line names the file's line and both readings; the same file
+    read with time_marks = "start" keeps the planted starts."""
+    ends, values = _records()
+    starts = ends - pd.Timedelta(minutes=30)
+    path = _write(tmp_path / "p.csv", starts.strftime("%Y-%m-%d %H:%M"), values,
+                  top=["Period start"])
+    with pytest.raises(TimestampError, match=r"line 1 of .*'Period start'.*set time_marks = "
+                                             r'"start"'):
+        _read(path, rows_before_header=1)
+    frame, _ = read_table(path, columns=MAPPING, time_column="stamp",
+                          time_format="%Y-%m-%d %H:%M", time_marks="start",
+                          units={"vpd": "hPa"}, site=SITE, rows_before_header=1)
+    assert frame.index[0] == starts[0]
+    # a dated title over the same stamps still reads as before (the clock check judges)
+    dated = _write(tmp_path / "d.csv", starts.strftime("%Y-%m-%d %H:%M"), values,
+                   top=[f"Period start: {starts[0]:%Y-%m-%d}"])
+    frame, _ = _read(dated, rows_before_header=1)
+    assert frame.index[0] == starts[0] - pd.Timedelta(minutes=30)
