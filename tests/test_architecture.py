@@ -13,7 +13,7 @@ ROOT = Path(fluxpart.__file__).parent
 METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "column_faults",
                   "driver_mixture", "gap_sides", "gapfill", "method_failure", "partition",
                   "preflight", "responses",
-                  "scenarios", "screening", "solar", "storage_check", "uncertainty",
+                  "rg_zeros", "scenarios", "screening", "solar", "storage_check", "uncertainty",
                   "unit_checks", "ustar", "ustar_seasonal", "demo"}
 ORCHESTRATORS = {"pipeline", "batch", "cli", "verify", "diff", "report"}
 
