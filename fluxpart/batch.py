@@ -82,6 +82,7 @@ from .network_layout import (  # noqa: F401 - also this module's names
 )
 from .resultdir import check_folder, clean_leftovers, folder_lock, interrupted_writes
 from .schema import TIME_CONVENTION, units_for_table
+from .shared_records import day_keys, shared_days
 from .store import (
     PANDAS_ATTRS_KEY,
     atomic_write_bytes,
@@ -109,6 +110,7 @@ __all__ = [
     "run_site",
     "same_input_sites",
     "same_name_sites",
+    "same_records_sites",
 ]
 
 #: Index column of each budget table, the network dataset's sort key after ``site``.
@@ -253,7 +255,9 @@ class BatchReport:
         As written to ``out/failures.parquet``: ``site``, ``config``, ``error``,
         ``message``, ``kind``.
     warnings : tuple of str
-        Sites whose results come from the same input files (:func:`same_input_sites`).
+        Sites whose results come from the same input files (:func:`same_input_sites`)
+        or hold the same measured NEE (:func:`same_records_sites`), and the other
+        network warnings.
     """
 
     out: Path
@@ -1170,7 +1174,8 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
                           f"({error.strerror or error}); the site folders written are whole, "
                           "and a rerun skips them and rewrites the network tables") from None
     return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures,
-                       warnings=tuple(same_input_sites(outcomes) + same_name_sites(outcomes)
+                       warnings=tuple(same_input_sites(outcomes) + same_records_sites(outcomes)
+                                      + same_name_sites(outcomes)
                                       + different_settings_sites(outcomes)
                                       + unlisted_site_folders(out, [k for k, _ in network.sites])))
 
@@ -1206,6 +1211,45 @@ def same_input_sites(outcomes) -> list[str]:
             f"file(s) (SHA-256 {hashes[0][:12]}...): the network tables count those records "
             f"{len(keys)} times; check [input] path in their site configs"
             for hashes, keys in groups.items() if len(keys) > 1]
+
+
+def same_records_sites(outcomes) -> list[str]:
+    """One warning per pair of sites of different input files holding the same NEE.
+
+    A tower's file saved again by a spreadsheet, re-exported, or copied into a second
+    tower's folder has other bytes than the first, so :func:`same_input_sites` passes it,
+    while the network tables hold one tower's budget twice, the second under another
+    tower's name (round mistakes27). Each site's measured NEE (``nee`` of its
+    ``timeseries.parquet``) is digested day by day (:func:`fluxpart.shared_records.
+    day_keys`); two sites sharing :data:`fluxpart.shared_records.MIN_SHARED_DAYS` days or
+    more of identical values at identical stamps are named. Pairs of the same input
+    files are left to :func:`same_input_sites`.
+    """
+    keys, hashes = {}, {}
+    for outcome in outcomes:
+        if outcome.status == "failed":
+            continue
+        directory = Path(outcome.directory)
+        try:
+            table = pq.read_table(directory / "timeseries.parquet",
+                                  columns=["time", "nee"]).to_pandas()
+            hashes[outcome.key] = _input_hashes(directory)
+        except (FluxpartError, OSError, ValueError, KeyError, pa.ArrowException):
+            continue
+        keys[outcome.key] = day_keys(table["time"].to_numpy(), table["nee"].to_numpy())
+    warnings = []
+    for (first, second), days, start, end in shared_days(keys):
+        if hashes.get(first) and hashes.get(first) == hashes.get(second):
+            continue
+        warnings.append(
+            f"sites {first!r}, {second!r} hold the same measured NEE, value for value at "
+            f"the same stamps, on {days} days ({start:%Y-%m-%d} .. {end:%Y-%m-%d}), though "
+            "read from different input files: two towers never measure the same flux (each "
+            "half-hour carries a random error of tens of percent), so one file holds the "
+            "other's records (a copy or a re-export put in the wrong folder) or one tower "
+            "is listed twice: the network tables count those records twice; check [input] "
+            "path in their site configs")
+    return warnings
 
 
 def same_name_sites(outcomes) -> list[str]:
