@@ -1173,9 +1173,12 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
         raise OutputError(f"writing the network tables in {str(out)!r} failed "
                           f"({error.strerror or error}); the site folders written are whole, "
                           "and a rerun skips them and rewrites the network tables") from None
+    record_pairs = _same_record_pairs(outcomes)
+    same_records = {frozenset(pair) for pair, *_ in record_pairs}
     return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures,
-                       warnings=tuple(same_input_sites(outcomes) + same_records_sites(outcomes)
-                                      + same_name_sites(outcomes)
+                       warnings=tuple(same_input_sites(outcomes)
+                                      + _same_records_warnings(record_pairs)
+                                      + same_name_sites(outcomes, same_records)
                                       + different_settings_sites(outcomes)
                                       + unlisted_site_folders(out, [k for k, _ in network.sites])))
 
@@ -1225,6 +1228,12 @@ def same_records_sites(outcomes) -> list[str]:
     more of identical values at identical stamps are named. Pairs of the same input
     files are left to :func:`same_input_sites`.
     """
+    return _same_records_warnings(_same_record_pairs(outcomes))
+
+
+def _same_record_pairs(outcomes) -> list:
+    """The pairs of :func:`fluxpart.shared_records.shared_days` among `outcomes`' result
+    folders, without the pairs of the same input files."""
     keys, hashes = {}, {}
     for outcome in outcomes:
         if outcome.status == "failed":
@@ -1237,10 +1246,14 @@ def same_records_sites(outcomes) -> list[str]:
         except (FluxpartError, OSError, ValueError, KeyError, pa.ArrowException):
             continue
         keys[outcome.key] = day_keys(table["time"].to_numpy(), table["nee"].to_numpy())
+    return [(pair, days, start, end) for pair, days, start, end in shared_days(keys)
+            if not (hashes.get(pair[0]) and hashes.get(pair[0]) == hashes.get(pair[1]))]
+
+
+def _same_records_warnings(pairs) -> list[str]:
+    """The warning of :func:`same_records_sites` for each pair of :func:`_same_record_pairs`."""
     warnings = []
-    for (first, second), days, start, end in shared_days(keys):
-        if hashes.get(first) and hashes.get(first) == hashes.get(second):
-            continue
+    for (first, second), days, start, end in pairs:
         warnings.append(
             f"sites {first!r}, {second!r} hold the same measured NEE, value for value at "
             f"the same stamps, on {days} days ({start:%Y-%m-%d} .. {end:%Y-%m-%d}), though "
@@ -1252,7 +1265,7 @@ def same_records_sites(outcomes) -> list[str]:
     return warnings
 
 
-def same_name_sites(outcomes) -> list[str]:
+def same_name_sites(outcomes, same_records=()) -> list[str]:
     """One warning per group of sites of different inputs that carry the same [site] name.
 
     A site config copied for a new tower with its ``[input] path`` changed but its
@@ -1265,7 +1278,9 @@ def same_name_sites(outcomes) -> list[str]:
     same input files are left to :func:`same_input_sites`. Sites whose annual tables share
     no year are left alone too: one tower's record split into configs per year or per
     period (a new logger program, a changed set of columns) is one tower under one name,
-    its rows told apart by year.
+    its rows told apart by year. Pairs of keys in `same_records` (sets of two keys whose
+    measured NEE is the same, :func:`same_records_sites`) are one tower's records, named
+    there, not two towers.
     """
     groups: dict[str, list[tuple[str, str, tuple, set | None]]] = {}
     for outcome in outcomes:
@@ -1284,7 +1299,7 @@ def same_name_sites(outcomes) -> list[str]:
             f"{members[0][1]!r} but were computed from different input files: the network "
             "tables hold one name for different towers; give each its own [site] name (and "
             "check its latitude and longitude)"
-            for members in groups.values() if _same_years_other_inputs(members)]
+            for members in groups.values() if _same_years_other_inputs(members, same_records)]
 
 
 #: Settings that belong to one site by nature, left out of :func:`different_settings_sites`:
@@ -1349,11 +1364,14 @@ def _years(outcome) -> set | None:
         return None
 
 
-def _same_years_other_inputs(members) -> bool:
+def _same_years_other_inputs(members, same_records=()) -> bool:
     """Whether two of `members` (key, name, input hashes, years) come from different
-    inputs and share a year (or one's years are unknown)."""
-    for i, (_, _, hashes, years) in enumerate(members):
-        for _, _, other_hashes, other_years in members[i + 1:]:
+    inputs and share a year (or one's years are unknown), their records not the same
+    (a pair of keys in `same_records`)."""
+    for i, (key, _, hashes, years) in enumerate(members):
+        for other_key, _, other_hashes, other_years in members[i + 1:]:
+            if frozenset((key, other_key)) in same_records:
+                continue
             if hashes != other_hashes and (years is None or other_years is None
                                            or years & other_years):
                 return True

@@ -66,8 +66,9 @@ def test_a_short_overlap_and_flat_winter_days_are_quiet():
 
 def test_batch_names_two_sites_of_the_same_records(tmp_path):
     """A batch whose second tower's folder holds the first tower's file saved again (other
-    bytes, the same records): named with both keys; sites of the same input file are
-    left to the same-input warning; a failed site is skipped."""
+    bytes, the same records): named with both keys, and not as two towers under one
+    name; sites of the same input file are left to the same-input warning; a failed site
+    is skipped."""
     index, nee = _tower()
 
     def folder(key, values, sha):
@@ -76,7 +77,8 @@ def test_batch_names_two_sites_of_the_same_records(tmp_path):
         pd.DataFrame({"time": index, "nee": values}).to_parquet(
             directory / "timeseries.parquet")
         (directory / "manifest.json").write_text(json.dumps(
-            {"provenance": {"input": {"path": "a.csv", "sha256": sha}}}))
+            {"site": {"name": "Quillmoor east meadow"},
+             "provenance": {"input": {"path": "a.csv", "sha256": sha}}}))
         return batch.SiteOutcome(key=key, config=f"{key}.toml", directory=str(directory),
                                  status="written")
 
@@ -90,6 +92,10 @@ def test_batch_names_two_sites_of_the_same_records(tmp_path):
     assert len(warnings) == 1
     assert warnings[0].startswith("sites 'east', 'north' hold the same measured NEE")
     assert "different input files" in warnings[0] and "[input] path" in warnings[0]
+    # under one [site] name the pair is one tower's records, not "different towers"
+    pair = outcomes[:2]
+    assert len(batch.same_name_sites(pair)) == 1
+    assert batch.same_name_sites(pair, {frozenset(("east", "north"))}) == []
     same_file = [folder("south", nee, "dd"), folder("south_copy", nee, "dd")]
     assert batch.same_records_sites(same_file) == []
     assert len(batch.same_input_sites(same_file)) == 1
