@@ -1243,9 +1243,9 @@ def _same_record_pairs(outcomes) -> list:
             table = pq.read_table(directory / "timeseries.parquet",
                                   columns=["time", "nee"]).to_pandas()
             hashes[outcome.key] = _input_hashes(directory)
-        except (FluxpartError, OSError, ValueError, KeyError, pa.ArrowException):
+            keys[outcome.key] = day_keys(table["time"].to_numpy(), table["nee"].to_numpy())
+        except (FluxpartError, OSError, ValueError, TypeError, KeyError, pa.ArrowException):
             continue
-        keys[outcome.key] = day_keys(table["time"].to_numpy(), table["nee"].to_numpy())
     return [(pair, days, start, end) for pair, days, start, end in shared_days(keys)
             if not (hashes.get(pair[0]) and hashes.get(pair[0]) == hashes.get(pair[1]))]
 

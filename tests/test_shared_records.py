@@ -96,6 +96,10 @@ def test_batch_names_two_sites_of_the_same_records(tmp_path):
     pair = outcomes[:2]
     assert len(batch.same_name_sites(pair)) == 1
     assert batch.same_name_sites(pair, {frozenset(("east", "north"))}) == []
+    # a folder whose table lacks the column (or is unreadable) is left out, not an error
+    odd = folder("odd", nee, "ee")
+    pd.DataFrame({"time": index}).to_parquet(tmp_path / "odd" / "timeseries.parquet")
+    assert len(batch.same_records_sites(outcomes + [odd])) == 1
     same_file = [folder("south", nee, "dd"), folder("south_copy", nee, "dd")]
     assert batch.same_records_sites(same_file) == []
     assert len(batch.same_input_sites(same_file)) == 1
