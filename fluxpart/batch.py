@@ -82,6 +82,7 @@ from .network_layout import (  # noqa: F401 - also this module's names
 )
 from .resultdir import check_folder, clean_leftovers, folder_lock, interrupted_writes
 from .schema import TIME_CONVENTION, units_for_table
+from .shared_records import day_keys, shared_days
 from .store import (
     PANDAS_ATTRS_KEY,
     atomic_write_bytes,
@@ -109,6 +110,7 @@ __all__ = [
     "run_site",
     "same_input_sites",
     "same_name_sites",
+    "same_records_sites",
 ]
 
 #: Index column of each budget table, the network dataset's sort key after ``site``.
@@ -253,7 +255,9 @@ class BatchReport:
         As written to ``out/failures.parquet``: ``site``, ``config``, ``error``,
         ``message``, ``kind``.
     warnings : tuple of str
-        Sites whose results come from the same input files (:func:`same_input_sites`).
+        Sites whose results come from the same input files (:func:`same_input_sites`)
+        or hold the same measured NEE (:func:`same_records_sites`), and the other
+        network warnings.
     """
 
     out: Path
@@ -1194,8 +1198,12 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
         raise OutputError(f"writing the network tables in {str(out)!r} failed "
                           f"({error.strerror or error}); the site folders written are whole, "
                           "and a rerun skips them and rewrites the network tables") from None
+    record_pairs = _same_record_pairs(outcomes)
+    same_records = {frozenset(pair) for pair, *_ in record_pairs}
     return BatchReport(out=out, outcomes=tuple(outcomes), network=table, failures=failures,
-                       warnings=tuple(same_input_sites(outcomes) + same_name_sites(outcomes)
+                       warnings=tuple(same_input_sites(outcomes)
+                                      + _same_records_warnings(record_pairs)
+                                      + same_name_sites(outcomes, same_records)
                                       + different_settings_sites(outcomes)
                                       + unlisted_site_folders(out, [k for k, _ in network.sites])))
 
@@ -1233,7 +1241,56 @@ def same_input_sites(outcomes) -> list[str]:
             for hashes, keys in groups.items() if len(keys) > 1]
 
 
-def same_name_sites(outcomes) -> list[str]:
+def same_records_sites(outcomes) -> list[str]:
+    """One warning per pair of sites of different input files holding the same NEE.
+
+    A tower's file saved again by a spreadsheet, re-exported, or copied into a second
+    tower's folder has other bytes than the first, so :func:`same_input_sites` passes it,
+    while the network tables hold one tower's budget twice, the second under another
+    tower's name (round mistakes27). Each site's measured NEE (``nee`` of its
+    ``timeseries.parquet``) is digested day by day (:func:`fluxpart.shared_records.
+    day_keys`); two sites sharing :data:`fluxpart.shared_records.MIN_SHARED_DAYS` days or
+    more of identical values at identical stamps are named. Pairs of the same input
+    files are left to :func:`same_input_sites`.
+    """
+    return _same_records_warnings(_same_record_pairs(outcomes))
+
+
+def _same_record_pairs(outcomes) -> list:
+    """The pairs of :func:`fluxpart.shared_records.shared_days` among `outcomes`' result
+    folders, without the pairs of the same input files."""
+    keys, hashes = {}, {}
+    for outcome in outcomes:
+        if outcome.status == "failed":
+            continue
+        directory = Path(outcome.directory)
+        try:
+            table = pq.read_table(directory / "timeseries.parquet",
+                                  columns=["time", "nee"]).to_pandas()
+            hashes[outcome.key] = _input_hashes(directory)
+            keys[outcome.key] = day_keys(table["time"].to_numpy(), table["nee"].to_numpy())
+        except (FluxpartError, OSError, ValueError, TypeError, KeyError, pa.ArrowException):
+            continue
+    return [(pair, days, start, end) for pair, days, start, end in shared_days(keys)
+            if not (hashes.get(pair[0]) and hashes.get(pair[0]) == hashes.get(pair[1]))]
+
+
+def _same_records_warnings(pairs) -> list[str]:
+    """The warning of :func:`same_records_sites` for each pair of :func:`_same_record_pairs`."""
+    warnings = []
+    for (first, second), days, start, end in pairs:
+        warnings.append(
+            f"sites {first!r}, {second!r} hold the same measured NEE, value for value at "
+            f"the same stamps, on {days} days ({start:%Y-%m-%d} .. {end:%Y-%m-%d}), though "
+            "read from different input files: two towers never measure the same flux (each "
+            "half-hour carries a random error of tens of percent), so one file holds the "
+            "other's records (a copy or a re-export put in the wrong folder) or one tower "
+            "is listed twice: the network tables count those records twice; check [input] "
+            "path in their site configs")
+    return warnings
+
+
+def same_name_sites(outcomes, same_records=()) -> list[str]:
     """One warning per group of sites of different inputs that carry the same [site] name.
 
     A site config copied for a new tower with its ``[input] path`` changed but its
@@ -1246,7 +1303,9 @@ def same_name_sites(outcomes) -> list[str]:
     same input files are left to :func:`same_input_sites`. Sites whose annual tables share
     no year are left alone too: one tower's record split into configs per year or per
     period (a new logger program, a changed set of columns) is one tower under one name,
-    its rows told apart by year.
+    its rows told apart by year. Pairs of keys in `same_records` (sets of two keys whose
+    measured NEE is the same, :func:`same_records_sites`) are one tower's records, named
+    there, not two towers.
     """
     groups: dict[str, list[tuple[str, str, tuple, set | None]]] = {}
     for outcome in outcomes:
@@ -1265,7 +1324,7 @@ def same_name_sites(outcomes) -> list[str]:
             f"{members[0][1]!r} but were computed from different input files: the network "
             "tables hold one name for different towers; give each its own [site] name (and "
             "check its latitude and longitude)"
-            for members in groups.values() if _same_years_other_inputs(members)]
+            for members in groups.values() if _same_years_other_inputs(members, same_records)]
 
 
 #: Settings that belong to one site by nature, left out of :func:`different_settings_sites`:
@@ -1330,11 +1389,14 @@ def _years(outcome) -> set | None:
         return None
 
 
-def _same_years_other_inputs(members) -> bool:
+def _same_years_other_inputs(members, same_records=()) -> bool:
     """Whether two of `members` (key, name, input hashes, years) come from different
-    inputs and share a year (or one's years are unknown)."""
-    for i, (_, _, hashes, years) in enumerate(members):
-        for _, _, other_hashes, other_years in members[i + 1:]:
+    inputs and share a year (or one's years are unknown), their records not the same
+    (a pair of keys in `same_records`)."""
+    for i, (key, _, hashes, years) in enumerate(members):
+        for other_key, _, other_hashes, other_years in members[i + 1:]:
+            if frozenset((key, other_key)) in same_records:
+                continue
             if hashes != other_hashes and (years is None or other_years is None
                                            or years & other_years):
                 return True

@@ -85,7 +85,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from . import night_uptake, solar
+from . import night_uptake, rg_zeros, solar
 from .column_faults import (
     PLACEHOLDER_VARIABLES,
     censored_nee,
@@ -426,6 +426,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
         text = rg_blank_in_the_dark(screened["rg"].to_numpy(dtype=float), potential, names)
         if text:
             findings.append(Finding("input (rg dark)", text, False))
+        # a lost value written as 0 with the sun well up (round mistakes27)
+        text = rg_zeros.rg_zero_in_daylight(screened["rg"].to_numpy(dtype=float), potential,
+                                            screened.index, names)
+        if text:
+            findings.append(Finding("input (rg zeros)", text, False))
     if {"tair", "rg"} <= set(screened.columns):
         # an air temperature without a diurnal course (round mistakes25)
         text = flat_air_temperature(screened["tair"].to_numpy(dtype=float),

@@ -631,3 +631,31 @@ def test_hot_desert_summer_is_not_refused():
     assert "tair" in refusals
     assert implausible_message("vpd", vpd * 100.0, vpd * 100.0, None, "d", ()) is not None
     assert implausible_message("tsoil", tsoil + 273.15, tsoil + 273.15, None, "s", ()) is not None
+
+
+def test_hourly_nee_written_twice_is_not_called_mg_co2():
+    """Known-truth recovery (round mistakes27) on the invented Quillmoor site: hourly NEE
+    forward-filled into its half-hourly records repeats every other record, so the median
+    change between night records halved and quiet months were refused as mg CO2 m-2 s-1
+    (the example's February and March), where the preflight names values written twice.
+    The noise is now the larger median of the two phases of pairs: no refusal and no month
+    named; the same column in mg CO2 (22.7 times smaller: 1 µmol CO2 = 44.01 µg, IUPAC
+    molar mass) is still refused, and so is an independent record in mg CO2."""
+    from fluxpart import demo
+    from fluxpart.io import _potential
+
+    frame = demo.site_year(0)[0]
+    names = ("nee", "rg", "tair", "vpd", "rh")
+    converted = {n: frame[n].to_numpy(float) for n in names}
+    hourly = np.nanmean(converted["nee"].reshape(-1, 2), axis=1)
+    twice = np.repeat(hourly, 2)
+    potential = _potential(frame.index, demo.site(), 30)
+    columns = {n: n for n in names}
+    refusals, warnings = mixup_messages(dict(converted, nee=twice), {}, columns, 30,
+                                        potential, (), frame.index)
+    assert "nee" not in refusals
+    assert not any("'nee' (nee): in " in w for w in warnings)
+    for values in (twice, converted["nee"]):
+        refusals, _ = mixup_messages(dict(converted, nee=values / 22.7), {}, columns, 30,
+                                     potential, (), frame.index)
+        assert "nee" in refusals and "mg CO2" in refusals["nee"]
