@@ -95,6 +95,7 @@ from .store import (
     unreadable,
     write_table,
 )
+from .worker_match import client_environment, mismatch_error, older_worker_error
 
 __all__ = [
     "BatchReport",
@@ -516,7 +517,8 @@ def _annual_from(directory: Path) -> tuple[pd.DataFrame, dict, tuple]:
     return annual, manifest["site"], tuple(manifest.get("warnings") or ())
 
 
-def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome:
+def run_site(key: str, config, directory, *, force: bool = False,
+             client: dict | None = None) -> SiteOutcome:
     """Process one site config into its result folder: the work of one batch task.
 
     Parameters
@@ -530,6 +532,11 @@ def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome
         The site's result folder, written as ``fluxpart run --out directory`` does.
     force : bool, optional
         Process even if the folder is up to date (:func:`is_up_to_date`).
+    client : dict, optional
+        The batch client's code and library versions
+        (:func:`fluxpart.worker_match.client_environment`): a worker running other code
+        fails the site (``WorkerMismatchError``) before reading or writing anything.
+        None (a direct call) checks nothing.
 
     Returns
     -------
@@ -543,6 +550,9 @@ def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome
     config, directory = Path(config), Path(directory)
     common = {"key": key, "config": str(config), "directory": str(directory)}
     try:
+        mismatch = mismatch_error(client)
+        if mismatch is not None:
+            raise mismatch
         reason = "forced" if force else _stale_reason(config, directory)
         if reason is None:
             tidy_skipped(directory)
@@ -1503,9 +1513,10 @@ def _run_tasks(client, sites, out: Path, force: bool, progress,
     from dask.distributed import wait
 
     futures, run = {}, uuid.uuid4().hex[:8]
+    environment = client_environment()   # each worker compares its own code with it
     for position, (key, config) in enumerate(sites):
         future = client.submit(run_site, key, str(config), str(out / key), force=force,
-                               key=f"fluxpart-site-{key}-{run}")
+                               client=environment, key=f"fluxpart-site-{key}-{run}")
         futures[future] = (position, key, config)
     outcomes = [None] * len(sites)
     pending, started, finished = set(futures), {}, 0
@@ -1545,8 +1556,10 @@ def _run_tasks(client, sites, out: Path, force: bool, progress,
                                     "directory": str(out / key)},
                                    scheduler_lost_error(str(address), error))
             except Exception as error:  # a lost worker fails its site only
-                outcome = _lost_site(_failure({"key": key, "config": str(config),
-                                               "directory": str(out / key)}, error), error)
+                common = {"key": key, "config": str(config), "directory": str(out / key)}
+                older = older_worker_error(error)
+                outcome = (_failure(common, older) if older is not None
+                           else _lost_site(_failure(common, error), error))
             end(future, outcome)
         if not pending:
             break

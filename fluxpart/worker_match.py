@@ -1,0 +1,122 @@
+"""The code a batch worker runs, compared with its client's before a site is computed.
+
+A batch sends each site to a Dask worker as a path and a function name; the worker
+imports *its own* installed fluxpart and libraries. On an existing cluster
+(``fluxpart batch --scheduler``) a worker started from another environment (an older
+install on one node, another container image, a stale ``PYTHONPATH``) computed and
+wrote its sites with other code than the client's, without a word: the batch summary
+said "processed", the network tables joined results of two codes, and a rerun judged
+each such site up to date by the *worker's* code. Each task now carries the client's
+code fingerprint and library versions (:func:`client_environment`), and a worker that
+differs refuses the site before reading or writing anything
+(:func:`mismatch_error`).
+"""
+
+from __future__ import annotations
+
+import socket
+
+from .errors import FluxpartError
+from .fingerprint import code_fingerprint
+from .manifest import library_versions
+
+__all__ = ["WorkerMismatchError", "client_environment", "mismatch_error", "older_worker_error"]
+
+
+class WorkerMismatchError(FluxpartError):
+    """A batch worker runs other fluxpart code or library versions than its client."""
+
+
+def client_environment() -> dict:
+    """The code and library versions a batch's client runs, to send with each task.
+
+    Returns
+    -------
+    dict
+        ``code`` (the SHA-256 of fluxpart's source files,
+        :func:`fluxpart.fingerprint.code_fingerprint`) and ``versions`` (Python and
+        the libraries that shape the numbers, :func:`fluxpart.manifest.library_versions`),
+        the two records of a result's manifest that decide whether a rerun gives the
+        same tables.
+    """
+    return {"code": code_fingerprint()["sha256"], "versions": library_versions()}
+
+
+def mismatch_error(expected: dict | None) -> WorkerMismatchError | None:
+    """The error of a worker whose code differs from its client's, or None.
+
+    Parameters
+    ----------
+    expected : dict or None
+        The client's :func:`client_environment`; None checks nothing (a direct call of
+        :func:`fluxpart.batch.run_site`).
+
+    Returns
+    -------
+    WorkerMismatchError or None
+        Names the worker's host, what differs (the code fingerprint, or each library
+        whose version differs, with both versions) and the fix.
+
+    Notes
+    -----
+    The manifest of every result records its code fingerprint and library versions,
+    and :func:`fluxpart.batch.is_up_to_date` compares them with the code that judges:
+    the worker's. A worker of other code therefore wrote sites the client's release
+    would not have written and later found them current. Refusing on the worker, at the
+    start of the task, leaves the site's folder as an earlier run left it.
+
+    References
+    ----------
+    Dask.distributed documentation, "Futures": a submitted function runs in the
+    worker's own Python process and imports (m).
+    """
+    if not expected:
+        return None
+    here = client_environment()
+    differences = []
+    theirs = expected.get("versions") or {}
+    for name in sorted(set(theirs) | set(here["versions"])):
+        if theirs.get(name) != here["versions"].get(name):
+            differences.append(f"{name} {here['versions'].get(name, 'not installed')} "
+                               f"on the worker, {theirs.get(name, 'not installed')} on the "
+                               "client")
+    if expected.get("code") != here["code"]:
+        differences.append(f"fluxpart code SHA-256 {here['code'][:12]} on the worker, "
+                           f"{str(expected.get('code'))[:12]} on the client (the same "
+                           "release with edited files, or another copy on PYTHONPATH)")
+    if not differences:
+        return None
+    return WorkerMismatchError(
+        f"the Dask worker on {socket.gethostname()} runs other code than the batch's "
+        f"client: {'; '.join(differences)}. The site was not computed; its folder keeps "
+        "what an earlier run left. Start every worker from the client's environment (the "
+        "same fluxpart and libraries), then rerun the batch")
+
+
+def older_worker_error(error: BaseException) -> WorkerMismatchError | None:
+    """The mismatch error of a worker whose fluxpart predates the check, or None.
+
+    Parameters
+    ----------
+    error : BaseException
+        What a batch task raised on its worker.
+
+    Returns
+    -------
+    WorkerMismatchError or None
+        Where `error` is the ``TypeError`` of a ``run_site`` without the ``client``
+        keyword (fluxpart 0.24.0 or earlier on the worker), the error naming it; else None.
+
+    Notes
+    -----
+    Dask sends a task's function by reference (module and name), so the worker calls
+    its own release's ``run_site``; one older than this check refuses the keyword before
+    reading or writing anything.
+    """
+    if isinstance(error, TypeError) and "unexpected keyword argument 'client'" in str(error):
+        return WorkerMismatchError(
+            "the Dask worker runs an older fluxpart than the batch's client (its run_site "
+            "takes no client check). The site was not computed; its folder keeps what an "
+            "earlier run left. Start every worker from the client's environment (the same "
+            "fluxpart and libraries), then rerun the batch")
+    return None

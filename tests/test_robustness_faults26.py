@@ -1,0 +1,171 @@
+"""Result safety, portable verify and batch faults (round faults26).
+
+Contracts (README "Command line", DESIGN §7): a user error is one ``error:`` line, exit
+2, nothing half-written or left behind; a batch site that fails is named alone, the
+others and the network tables go on (exit 1); a result records the code that computed
+it. External facts used, each named beside its check: ENOSPC is returned when a file
+system's blocks or its inodes are used up (open(2), mkdir(2) (m)); ``statvfs`` reports
+free inodes in ``f_favail`` (statvfs(3) (m)); Dask runs a submitted function in the
+worker's own process and imports (Dask.distributed documentation, "Futures" (m));
+Python raises ``TypeError: ... got an unexpected keyword argument 'NAME'`` for a keyword
+a function lacks (Python language reference, "Calls" (m)). Invented Quillmoor bundles
+only, for known-truth recovery.
+"""
+
+import errno
+import os
+from pathlib import Path
+
+import pytest
+from bundles import make_bundle
+
+from fluxpart import batch, store
+from fluxpart.cli import main
+from fluxpart.manifest import library_versions
+from fluxpart.worker_match import (
+    WorkerMismatchError,
+    client_environment,
+    mismatch_error,
+    older_worker_error,
+)
+
+# --------------------------------------------------------------------------- worker code
+
+
+def test_a_worker_of_other_code_fails_its_site_before_writing(tmp_path):
+    """A Dask worker started from another copy of fluxpart (``--scheduler`` with a
+    worker of an older install or a stale ``PYTHONPATH``) wrote its sites with its own
+    code, the batch said "processed" and a rerun found them up to date by the worker's
+    code (measured: 3 sites written with code d8505de2..., the client's 0a1c2ca9...).
+    Now the task carries the client's code fingerprint and library versions and a
+    worker that differs fails the site before reading or writing (known truth: the
+    folder stays absent); the same environment writes as before."""
+    config = make_bundle(tmp_path / "fen", name="fen.toml")
+    folder = tmp_path / "net" / "fen"
+    other = {"code": "0" * 64, "versions": library_versions()}
+    outcome = batch.run_site("fen", config, folder, client=other)
+    assert outcome.status == "failed" and outcome.error == "WorkerMismatchError"
+    assert "fluxpart code SHA-256" in outcome.message and "0" * 12 in outcome.message
+    assert "Start every worker" in outcome.message
+    assert not folder.exists() and not folder.parent.exists()
+    assert batch.run_site("fen", config, folder, client=client_environment()).status \
+        == "written"
+
+
+def test_a_library_version_that_differs_is_named_with_both_versions():
+    """numpy of another version on a worker than on the client (one node's older
+    environment): named with both versions; equal environments and a direct call (no
+    client record) pass."""
+    here = client_environment()
+    theirs = {**here, "versions": {**here["versions"], "numpy": "0.0.1"}}
+    error = mismatch_error(theirs)
+    assert isinstance(error, WorkerMismatchError)
+    text = str(error)
+    assert f"numpy {here['versions']['numpy']} on the worker, 0.0.1 on the client" in text
+    assert "fluxpart code" not in text
+    assert mismatch_error(here) is None and mismatch_error(None) is None
+
+
+def test_a_worker_of_an_older_release_is_named_not_a_type_error():
+    """A worker whose fluxpart predates the check calls its own ``run_site`` (Dask sends
+    the function by module and name (m)), which has no ``client`` keyword: the site
+    ended as ``TypeError`` with a traceback. It is now named as an older worker."""
+    def run_site(key, config, directory, *, force=False):   # 0.24.0's signature
+        return key
+
+    with pytest.raises(TypeError) as raised:
+        run_site("fen", "fen.toml", "net/fen", force=False, client={})
+    error = older_worker_error(raised.value)
+    assert isinstance(error, WorkerMismatchError) and "older fluxpart" in str(error)
+    assert older_worker_error(TypeError("unsupported operand")) is None
+    assert older_worker_error(ValueError("x")) is None
+
+
+def test_a_batch_names_each_site_of_a_mismatched_worker(tmp_path, monkeypatch):
+    """Wiring: the client's record reaches every task of a real local cluster; with the
+    client's record standing for other code (the workers run this code), each site fails
+    by name, nothing is written in its folder, and the batch goes on to its network
+    tables (exit 1)."""
+    pytest.importorskip("distributed")
+    for name in ("fen", "moor"):
+        make_bundle(tmp_path / name, name=f"{name}.toml")
+    sites = tmp_path / "SITES.toml"
+    sites.write_text('[batch]\nsites = ["fen/fen.toml", "moor/moor.toml"]\nout = "net"\n')
+    monkeypatch.setattr(batch, "client_environment",
+                        lambda: {"code": "f" * 64, "versions": library_versions()})
+    report = batch.run_batch(sites, workers=1)
+    assert report.failed == 2 and report.exit_code == 1
+    assert {o.error for o in report.outcomes} == {"WorkerMismatchError"}
+    assert not (tmp_path / "net" / "fen").exists() and not (tmp_path / "net" / "moor").exists()
+
+
+# --------------------------------------------------------------------------- out of inodes
+
+class _Statvfs:
+    """A statvfs result with given inode and block counts (statvfs(3) fields)."""
+
+    def __init__(self, files, favail, bavail, frsize=4096):
+        self.f_files, self.f_favail, self.f_bavail, self.f_frsize = files, favail, bavail, frsize
+
+
+def test_a_file_system_out_of_inodes_is_named_as_such(tmp_path, monkeypatch):
+    """ENOSPC on a file system with space but no free inodes (a tmpfs of nr_inodes=12
+    measured: 52.4 MB free) said "No space left on device" and nothing else (run), or
+    "free space" / "choose a writable place" (report, exports), while ``df -h`` shows
+    room. The remedy now names the inodes, their count and the free space; a file
+    system whose space ran out keeps the plain remedy, and btrfs (``f_files`` 0, no
+    fixed number) too."""
+    monkeypatch.setattr(os, "statvfs", lambda path: _Statvfs(12, 0, 12_800))
+    text = store.full_disk_remedy(tmp_path)
+    assert "0 free inodes" in text and "of 12" in text and "df -i" in text
+    assert "52.4 MB" in text
+    monkeypatch.setattr(os, "statvfs", lambda path: _Statvfs(6_553_600, 6_000_000, 0))
+    assert store.full_disk_remedy(tmp_path) == "free space, or choose another place"
+    monkeypatch.setattr(os, "statvfs", lambda path: _Statvfs(0, 0, 12_800))
+    assert store.full_disk_remedy(tmp_path, "x") == "x"
+    assert "df -i" not in store.full_disk_remedy(tmp_path / "missing" / "deeper")
+
+
+def test_run_into_a_file_system_out_of_inodes_says_so(tmp_path, monkeypatch, capsys):
+    """Wiring: `run` whose probe file cannot be made (ENOSPC) on a file system without
+    free inodes: one line naming the inodes, exit 2, nothing made."""
+    import tempfile
+
+    config = make_bundle(tmp_path / "site")
+
+    def no_inode(*args, **kwargs):
+        raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
+
+    monkeypatch.setattr(tempfile, "TemporaryFile", no_inode)
+    monkeypatch.setattr(os, "statvfs", lambda path: _Statvfs(12, 0, 12_800))
+    out = tmp_path / "site" / "out"
+    assert main(["run", str(config), "--out", str(out), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: --out "), err
+    assert "free inodes" in err[0] and "df -i" in err[0]
+    assert not out.exists()
+
+
+# --------------------------------------------------------------------------- lock file link
+
+def test_a_lock_file_that_is_a_symbolic_link_is_named_and_its_target_kept(
+        tmp_path, capsys):
+    """``.OUT.lock`` a symbolic link to a user's file (a tree copied with ``cp -s``, a
+    link planted in a shared folder): filelock opens it with ``O_NOFOLLOW`` (ELOOP,
+    open(2) (m)), so the target was safe, but the line said "Too many levels of symbolic
+    links; choose a writable output folder". Now it names the link and its target and
+    says to remove the link; the target's bytes are untouched (known truth)."""
+    config = make_bundle(tmp_path / "site")
+    precious = tmp_path / "notes.txt"
+    precious.write_text("field notes\n")
+    out = tmp_path / "site" / "out"
+    (tmp_path / "site" / ".out.lock").symlink_to(precious)
+    assert main(["run", str(config), "--out", str(out), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "is a symbolic link" in err[0], err
+    assert str(precious) in err[0] and "remove the link" in err[0]
+    assert precious.read_text() == "field notes\n"
+    assert not out.exists()
+    (tmp_path / "site" / ".out.lock").unlink()
+    assert main(["run", str(config), "--out", str(out), "--quiet"]) == 0
+    assert Path(out / "manifest.json").is_file()
