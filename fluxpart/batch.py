@@ -95,7 +95,12 @@ from .store import (
     unreadable,
     write_table,
 )
-from .worker_match import client_environment, mismatch_error, older_worker_error
+from .worker_match import (
+    client_environment,
+    mismatch_error,
+    older_worker_error,
+    scratch_folder_problem,
+)
 
 __all__ = [
     "BatchReport",
@@ -1049,6 +1054,9 @@ def _client(scheduler, workers, sites: int | None = None):
     # (see _start_method): 2 workers started and one demo site each, 5.2-6.2 -> 4.4-4.9 s
     # CPU of all processes (the imports paid once, not per worker); the wall time gains
     # less on an idle machine, where spawned workers import side by side on two cores.
+    scratch = scratch_folder_problem(dask.config.get("temporary-directory", None))
+    if scratch:
+        raise ConfigError(f"the local Dask cluster cannot start: {scratch}")
     method = _start_method()
     saved = dict(os.environ)
     try:

@@ -1,4 +1,5 @@
-"""The code a batch worker runs, compared with its client's before a site is computed.
+"""The environment of a batch's workers: their code compared with the client's before a
+site is computed, and the scratch folder a local cluster's workers need.
 
 A batch sends each site to a Dask worker as a path and a function name; the worker
 imports *its own* installed fluxpart and libraries. On an existing cluster
@@ -14,13 +15,15 @@ differs refuses the site before reading or writing anything
 
 from __future__ import annotations
 
+import os
 import socket
 
 from .errors import FluxpartError
 from .fingerprint import code_fingerprint
 from .manifest import library_versions
 
-__all__ = ["WorkerMismatchError", "client_environment", "mismatch_error", "older_worker_error"]
+__all__ = ["WorkerMismatchError", "client_environment", "mismatch_error", "older_worker_error",
+           "scratch_folder_problem"]
 
 
 class WorkerMismatchError(FluxpartError):
@@ -120,3 +123,47 @@ def older_worker_error(error: BaseException) -> WorkerMismatchError | None:
             "earlier run left. Start every worker from the client's environment (the same "
             "fluxpart and libraries), then rerun the batch")
     return None
+
+
+def scratch_folder_problem(folder) -> str | None:
+    """Why Dask's configured ``temporary-directory`` cannot hold local workers, or None.
+
+    Parameters
+    ----------
+    folder : str or path-like or None
+        The value of Dask's ``temporary-directory`` setting (``dask.config``: the
+        ``DASK_TEMPORARY_DIRECTORY`` variable or a Dask config file); None or empty
+        when unset (the workers then use the system's temporary folder).
+
+    Returns
+    -------
+    str or None
+        A sentence naming the setting, the folder and the fix, or None where the folder
+        is usable (or not set).
+
+    Notes
+    -----
+    Each local worker makes its scratch space in that folder at start. A folder that
+    is missing or not writable (a setting made for another machine, a scratch file
+    system not mounted on this node) ended the batch with "the local Dask cluster ...
+    could not start (RuntimeError: ... No such file or directory: ...); give fewer
+    --workers, or raise the limit that ran out", a remedy that does not help.
+
+    References
+    ----------
+    Dask documentation, "Configuration": the ``temporary-directory`` key and the
+    ``DASK_`` environment variables that set keys (m).
+    """
+    if not folder:
+        return None
+    path = os.path.expanduser(os.fspath(folder))
+    if not os.path.isdir(path):
+        state = "is not a folder" if os.path.exists(path) else "does not exist"
+    elif not os.access(path, os.W_OK | os.X_OK):
+        state = "is not writable by this user"
+    else:
+        return None
+    return (f"Dask's temporary-directory setting is {str(folder)!r} (from "
+            "DASK_TEMPORARY_DIRECTORY or a Dask config file), which "
+            f"{state}, so no local worker can start; create the folder, or unset the "
+            "setting (the system's temporary folder is then used)")

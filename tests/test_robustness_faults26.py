@@ -169,3 +169,95 @@ def test_a_lock_file_that_is_a_symbolic_link_is_named_and_its_target_kept(
     (tmp_path / "site" / ".out.lock").unlink()
     assert main(["run", str(config), "--out", str(out), "--quiet"]) == 0
     assert Path(out / "manifest.json").is_file()
+
+
+# --------------------------------------------------------------------------- several input files
+
+def _two_file_bundle(folder: Path) -> Path:
+    """A bundle whose input is two monthly files (a glob), split from one input."""
+    config = make_bundle(folder)
+    lines = (folder / "tower.csv").read_text().splitlines(keepends=True)
+    half = 1 + (len(lines) - 1) // 2
+    (folder / "tower_01.csv").write_text("".join(lines[:half]))
+    (folder / "tower_02.csv").write_text("".join(lines[:1] + lines[half:]))
+    (folder / "tower.csv").unlink()
+    config.write_text(config.read_text().replace('path = "tower.csv"', 'path = "tower_*.csv"'))
+    return config
+
+
+def test_verify_locates_an_edit_in_one_of_several_input_files(tmp_path, capsys):
+    """A result read from monthly files (a glob) whose second month was edited after the
+    run: verify named the changed file only, "it is not the input file the result was
+    computed from" (left alone by faults23), while a single input got the record, column
+    and both values. All the files as they are now are read together as the run read
+    them and compared with the input values the result holds (known truth: one NEE
+    value typed over, 0.5 units more than the run read)."""
+    import pandas as pd
+
+    config = _two_file_bundle(tmp_path / "site")
+    out = tmp_path / "site" / "out"
+    assert main(["run", str(config), "--out", str(out), "--quiet"]) == 0
+    capsys.readouterr()
+    second = tmp_path / "site" / "tower_02.csv"
+    lines = second.read_text().splitlines(keepends=True)
+    column = lines[0].split(",").index("co2_exchange")
+    row = next(n for n in range(5, len(lines)) if lines[n].split(",")[column] != "-9999")
+    cells = lines[row].split(",")
+    then = float(cells[column])
+    cells[column] = f"{then + 0.5:.3f}"
+    lines[row] = ",".join(cells)
+    second.write_text("".join(lines))
+    assert main(["verify", str(out)]) == 1
+    text = capsys.readouterr().out
+    assert "tower_02.csv" in text and "1 value(s) in 1 record(s) differ" in text
+    stamp = (pd.Timestamp(lines[row].split(",")[0]) - pd.Timedelta("30min")).strftime(
+        "%Y-%m-%d %H:%M")     # stamp_end marks the interval's end: it starts 30 min before
+    assert f"record starting {stamp} 'co2_exchange'" in text
+    assert f"{then:.10g} then, {then + 0.5:.10g} now" in text
+
+
+def test_verify_of_several_files_with_one_missing_names_the_first_change(tmp_path, capsys):
+    """The first monthly file edited and the second moved away: the edit cannot be read
+    in the whole input, so the changed file is named alone as before (exit 1), not
+    refused for the missing one."""
+    config = _two_file_bundle(tmp_path / "site")
+    out = tmp_path / "site" / "out"
+    assert main(["run", str(config), "--out", str(out), "--quiet"]) == 0
+    capsys.readouterr()
+    first = tmp_path / "site" / "tower_01.csv"
+    lines = first.read_text().splitlines(keepends=True)
+    lines[3] = lines[3].replace(",", ",1", 1)         # one cell typed over
+    first.write_text("".join(lines))
+    (tmp_path / "site" / "tower_02.csv").rename(tmp_path / "moved.csv")
+    assert main(["verify", str(out)]) == 1
+    text = capsys.readouterr().out
+    assert "tower_01.csv" in text and "not the input file the result was computed from" in text
+    assert "differ (" not in text
+
+
+# --------------------------------------------------------------------------- Dask scratch
+
+def test_a_missing_dask_scratch_folder_is_named_before_the_cluster_starts(
+        tmp_path, capsys):
+    """``DASK_TEMPORARY_DIRECTORY`` (Dask's ``temporary-directory`` key, Dask
+    documentation "Configuration" (m)) naming a folder this node lacks: every local
+    worker failed to make its scratch space and the batch said "could not start ...
+    give fewer --workers, or raise the limit that ran out (ulimit -n, ulimit -u)".
+    Now the setting and the folder are named before a cluster starts, one line, exit
+    2, no site computed; a usable folder (or none set) passes."""
+    import dask
+
+    from fluxpart.worker_match import scratch_folder_problem
+
+    make_bundle(tmp_path / "fen", name="fen.toml")
+    sites = tmp_path / "SITES.toml"
+    sites.write_text('[batch]\nsites = ["fen/fen.toml"]\nout = "net"\n')
+    missing = tmp_path / "scratch-on-another-node"
+    with dask.config.set({"temporary-directory": str(missing)}):
+        assert main(["batch", str(sites), "--workers", "1"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "temporary-directory" in err[0] and str(missing) in err[0], err
+    assert "does not exist" in err[0] and "ulimit" not in err[0]
+    assert not (tmp_path / "net" / "fen").exists()
+    assert "not a folder" in scratch_folder_problem(sites)
+    assert scratch_folder_problem(tmp_path) is None and scratch_folder_problem(None) is None
