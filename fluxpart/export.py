@@ -60,7 +60,14 @@ import pandas as pd
 
 from .errors import FluxpartError, InputFileError, OutputError
 from .manifest import recorded_paths
-from .store import file_mode, full_disk_remedy, remove_stale, require_owner_access, set_mode
+from .store import (
+    file_mode,
+    full_disk_remedy,
+    remove_stale,
+    require_owner_access,
+    set_mode,
+    special_kind,
+)
 from .units import KG_CARBON_PER_UMOL
 
 __all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf",
@@ -685,6 +692,14 @@ def _check_target(path: Path, provenance, directory) -> None:
     """Refuse to replace a file fluxpart did not write, or one the result was computed from."""
     if not path.exists():
         return
+    special = special_kind(path)
+    if special:
+        # opened to read its first bytes, a pipe with no writer blocked without end
+        # (``--netcdf /dev/stdout | ...``, a named pipe): fifo(7) (m)
+        raise OutputError(f"--netcdf {str(path)!r} is {special}, not a file: the NetCDF is "
+                          "written to a temporary file beside the target and renamed into "
+                          "place, so it cannot go to a pipe or a device; give a file name "
+                          "(then copy or send that file)")
     recorded = recorded_paths(provenance if isinstance(provenance, dict) else {},
                               directory if directory is not None else Path.cwd())
     for source in recorded:

@@ -50,7 +50,8 @@ from .errors import InputFileError, OutputError
 
 __all__ = ["PANDAS_ATTRS_KEY", "atomic_write_bytes", "column_units", "file_mode", "file_sha256",
            "folder_mode", "full_disk_remedy", "parquet_source", "read_table", "reader_attrs",
-           "remove_stale", "set_mode", "table_shape", "unreadable", "write_table"]
+           "remove_stale", "set_mode", "special_kind", "table_shape", "unreadable",
+           "write_table"]
 
 _SCHEMA_KEY = b"fluxpart"
 #: The file-level key-value metadata key whose JSON ``pandas.read_parquet`` (pyarrow
@@ -253,6 +254,42 @@ def full_disk_remedy(path, fallback: str = "free space, or choose another place"
     return (f"the file system has only {info.f_favail} free inodes (file entries, `df -i`) "
             f"of {info.f_files} though {free:.1f} MB are free: remove files there (or "
             "make a file system with more inodes), or choose another place")
+
+
+def special_kind(path) -> str:
+    """``"a named pipe"``, ``"a device"`` or ``"a socket"`` for such a `path`, else ``""``.
+
+    Parameters
+    ----------
+    path : str or path-like
+        Any path; a symbolic link is followed (``/dev/stdout`` is the pipe or terminal
+        it leads to).
+
+    Returns
+    -------
+    str
+        The kind, with its article, or ``""`` for a plain file, a folder or no entry.
+
+    Notes
+    -----
+    Opening a named pipe for reading blocks until a writer opens it (fifo(7) (m)): a
+    command that reads the first bytes of what it was given (to tell an archive, or a
+    NetCDF file it may replace) waited without end on a pipe nobody writes. Ask this
+    first, without opening.
+    """
+    import stat
+
+    try:
+        mode = os.stat(path).st_mode
+    except (OSError, ValueError):
+        return ""
+    if stat.S_ISFIFO(mode):
+        return "a named pipe"
+    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
+        return "a device"
+    if stat.S_ISSOCK(mode):
+        return "a socket"
+    return ""
 
 
 def _existing(path: Path) -> Path:

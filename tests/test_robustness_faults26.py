@@ -261,3 +261,38 @@ def test_a_missing_dask_scratch_folder_is_named_before_the_cluster_starts(
     assert not (tmp_path / "net" / "fen").exists()
     assert "not a folder" in scratch_folder_problem(sites)
     assert scratch_folder_problem(tmp_path) is None and scratch_folder_problem(None) is None
+
+
+# --------------------------------------------------------------------------- pipes
+
+@pytest.mark.parametrize("command", [["verify", "{pipe}"], ["report", "{pipe}"],
+                                     ["export", "{pipe}", "--csv", "{tmp}/csv"],
+                                     ["diff", "{pipe}", "{out}"],
+                                     ["export", "{out}", "--netcdf", "{pipe}"]])
+def test_a_named_pipe_given_as_a_result_or_netcdf_target_is_refused_not_waited_on(
+        command, bundle, tmp_path, capsys):
+    """A named pipe nobody writes given as the result folder (a leftover `mkfifo`, a
+    process substitution whose writer ended) or as ``--netcdf`` (``--netcdf /dev/stdout
+    | ...``): the first bytes were read to tell an archive or a NetCDF file fluxpart
+    wrote, and opening a FIFO for reading blocks until a writer comes (fifo(7) (m)):
+    `verify`, `report`, `export` and `diff` waited without end (measured: stopped by
+    `timeout` after 20 s). Now one line naming the pipe, exit 2, nothing written (known
+    truth: the pipe stays a pipe)."""
+    import stat
+    import threading
+
+    pipe = tmp_path / "result"
+    os.mkfifo(pipe)
+    argv = [part.format(pipe=pipe, tmp=tmp_path, out=bundle / "out") for part in command]
+    codes = []
+    worker = threading.Thread(target=lambda: codes.append(main(argv)), daemon=True)
+    worker.start()
+    worker.join(60)
+    if worker.is_alive():                 # release the blocked open before failing
+        with open(pipe, "wb"):
+            pass
+        pytest.fail(f"{argv[0]} waited on the pipe")
+    assert codes == [2]
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "is a named pipe" in err[0], err
+    assert stat.S_ISFIFO(os.stat(pipe).st_mode) and not (tmp_path / "csv").exists()
