@@ -61,7 +61,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from ._validate import other_system_path_hint, read_toml
+from ._validate import other_system_path_hint, read_toml, unicode_form_hint
 from .config import Config, suggest_key
 from .errors import ConfigError, FluxpartError, FluxpartWarning, InputFileError, OutputError
 from .fingerprint import code_fingerprint
@@ -400,7 +400,7 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
             matches = [full]
         else:
             raise ConfigError(f"{where}: no such file {str(full)!r}"
-                              f"{other_system_path_hint(pattern)}")
+                              f"{other_system_path_hint(pattern) or unicode_form_hint(full)}")
         for match in matches:
             resolved = match.resolve()
             if resolved not in seen:

@@ -296,3 +296,39 @@ def test_a_named_pipe_given_as_a_result_or_netcdf_target_is_refused_not_waited_o
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and "is a named pipe" in err[0], err
     assert stat.S_ISFIFO(os.stat(pipe).st_mode) and not (tmp_path / "csv").exists()
+
+
+# --------------------------------------------------------------------------- Unicode forms
+
+def test_an_input_named_in_the_other_unicode_form_is_named_with_the_fix(tmp_path, capsys):
+    """A bundle copied through a Mac keeps ``grün.csv`` decomposed (NFD: ``u`` and a
+    combining diaeresis, Unicode Annex #15 (m)); the config, typed on Linux, says
+    ``grün.csv`` composed (NFC). Linux tells the two apart, so `run` said only "input
+    file 'grün.csv' does not exist" beside a file that looks identical (verify already
+    looks for the other form, faults18). Now the line names the entry in the other form
+    and the fix; nothing is read from it and nothing written. A batch's site listed in
+    a folder so copied is named likewise."""
+    import unicodedata
+
+    config = make_bundle(tmp_path / "site")
+    composed = unicodedata.normalize("NFC", "grün.csv")
+    decomposed = unicodedata.normalize("NFD", composed)
+    assert composed != decomposed                 # one code point against two
+    (tmp_path / "site" / "tower.csv").rename(tmp_path / "site" / decomposed)
+    config.write_text(config.read_text().replace('path = "tower.csv"',
+                                                 f'path = "{composed}"'))
+    out = tmp_path / "site" / "out"
+    assert main(["run", str(config), "--out", str(out), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "does not exist" in err[0], err
+    assert repr(decomposed) in err[0] and "another Unicode form (NFD" in err[0]
+    assert not out.exists()
+
+    folder = tmp_path / unicodedata.normalize("NFD", "Étang")
+    make_bundle(folder, name="fen.toml")
+    sites = tmp_path / "SITES.toml"
+    sites.write_text('[batch]\nsites = ["' + unicodedata.normalize("NFC", "Étang")
+                     + '/fen.toml"]\nout = "net"\n', encoding="utf-8")
+    assert main(["batch", str(sites)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "no such file" in err[0] and repr(folder.name) in err[0], err
