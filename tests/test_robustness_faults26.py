@@ -332,3 +332,34 @@ def test_an_input_named_in_the_other_unicode_form_is_named_with_the_fix(tmp_path
     assert main(["batch", str(sites)]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and "no such file" in err[0] and repr(folder.name) in err[0], err
+
+
+# --------------------------------------------------------------------------- MPLBACKEND
+
+def test_report_ignores_a_backend_matplotlib_refuses(copy):
+    """``MPLBACKEND`` inherited from a notebook (``!fluxpart report`` in Jupyter sets it
+    to ``module://matplotlib_inline.backend_inline``) or mistyped: matplotlib validates
+    it when imported and raised ValueError, so `report` ended in a traceback (exit 1),
+    though its figures use the Agg canvas, no backend (matplotlib documentation,
+    "Backends" (m)). A fresh process (matplotlib not yet imported) now draws the same
+    page and figures as without the variable."""
+    import hashlib
+    import subprocess
+    import sys
+
+    def report(**extra):
+        environment = {key: value for key, value in os.environ.items()
+                       if key != "MPLBACKEND"}
+        environment.update(PYTHONPATH=str(Path(__file__).resolve().parent.parent), **extra)
+        done = subprocess.run([sys.executable, "-m", "fluxpart", "report",
+                               str(copy / "out")], env=environment, capture_output=True,
+                              text=True, timeout=600)
+        folder = copy / "out" / "report"
+        return done.returncode, done.stderr, {
+            p.name: hashlib.sha256(p.read_bytes()).hexdigest() for p in folder.iterdir()}
+
+    code, _, plain = report()
+    assert code == 0
+    code, err, refused = report(MPLBACKEND="no_such_backend")
+    assert code == 0 and "Traceback" not in err, err
+    assert refused == plain
