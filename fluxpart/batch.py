@@ -522,8 +522,7 @@ def _annual_from(directory: Path) -> tuple[pd.DataFrame, dict, tuple]:
     return annual, manifest["site"], tuple(manifest.get("warnings") or ())
 
 
-def run_site(key: str, config, directory, *, force: bool = False,
-             client: dict | None = None) -> SiteOutcome:
+def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome:
     """Process one site config into its result folder: the work of one batch task.
 
     Parameters
@@ -537,11 +536,6 @@ def run_site(key: str, config, directory, *, force: bool = False,
         The site's result folder, written as ``fluxpart run --out directory`` does.
     force : bool, optional
         Process even if the folder is up to date (:func:`is_up_to_date`).
-    client : dict, optional
-        The batch client's code and library versions
-        (:func:`fluxpart.worker_match.client_environment`): a worker running other code
-        fails the site (``WorkerMismatchError``) before reading or writing anything.
-        None (a direct call) checks nothing.
 
     Returns
     -------
@@ -555,9 +549,6 @@ def run_site(key: str, config, directory, *, force: bool = False,
     config, directory = Path(config), Path(directory)
     common = {"key": key, "config": str(config), "directory": str(directory)}
     try:
-        mismatch = mismatch_error(client)
-        if mismatch is not None:
-            raise mismatch
         reason = "forced" if force else _stale_reason(config, directory)
         if reason is None:
             tidy_skipped(directory)
@@ -575,6 +566,23 @@ def run_site(key: str, config, directory, *, force: bool = False,
                            warnings=notes, **common)
     except Exception as error:  # isolate every site's failure
         return _failure(common, error)
+
+
+def _checked_site(key: str, config, directory, *, force: bool = False,
+                  client: dict | None = None) -> SiteOutcome:
+    """A batch task: :func:`run_site`, on a worker whose code matches its client's.
+
+    `client` is the client's :func:`fluxpart.worker_match.client_environment`; a
+    worker running other code fails the site (``WorkerMismatchError``) before reading
+    or writing anything. Dask sends this function by module and name, so a worker of
+    0.24.0 or earlier, which lacks it, fails the task as it unpacks it
+    (:func:`fluxpart.worker_match.older_worker_error`).
+    """
+    mismatch = mismatch_error(client)
+    if mismatch is not None:
+        return _failure({"key": key, "config": str(config), "directory": str(directory)},
+                        mismatch)
+    return run_site(key, config, directory, force=force)
 
 
 def tidy_skipped(directory) -> list[str]:
@@ -1523,7 +1531,7 @@ def _run_tasks(client, sites, out: Path, force: bool, progress,
     futures, run = {}, uuid.uuid4().hex[:8]
     environment = client_environment()   # each worker compares its own code with it
     for position, (key, config) in enumerate(sites):
-        future = client.submit(run_site, key, str(config), str(out / key), force=force,
+        future = client.submit(_checked_site, key, str(config), str(out / key), force=force,
                                client=environment, key=f"fluxpart-site-{key}-{run}")
         futures[future] = (position, key, config)
     outcomes = [None] * len(sites)
