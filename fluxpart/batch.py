@@ -964,7 +964,7 @@ def _use_fork_server() -> None:
 
 
 def dask_setup(worker) -> None:
-    """Make a worker of fluxpart's local cluster ignore Ctrl-C (Dask worker preload).
+    """Dask worker preload: ignore Ctrl-C and take the loaded code's fingerprint.
 
     A terminal's Ctrl-C sends SIGINT to every process of the foreground process group,
     the local workers included: each printed a 30-line KeyboardInterrupt traceback
@@ -987,6 +987,10 @@ def dask_setup(worker) -> None:
         signal.signal(signal.SIGINT, signal.SIG_IGN)
     except ValueError:         # not the main thread of its process: nothing to protect
         pass
+    # the fingerprint of the code this worker loaded, taken as it starts (about 4 ms): the
+    # client's is taken as the batch starts, so an edit to the package's files while the
+    # batch runs is not read as a worker of other code (fluxpart.worker_match)
+    code_fingerprint()
 
 
 def _check_cluster_options(scheduler, workers) -> None:
@@ -1165,6 +1169,7 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     workers of later clusters.
     """
     started = time.time()
+    code_fingerprint()               # the client's code as loaded now (fluxpart.worker_match)
     network = read_sites_file(sites_file)
     limit = (network.site_time_limit if site_time_limit is None
              else check_site_time_limit(site_time_limit, "--site-time-limit"))
