@@ -176,6 +176,62 @@ def refuse_binary(data: bytes, path) -> None:
                                  f"{fix} and point [input] path at the text file")
 
 
+def unicode_form_hint(path) -> str:
+    """The fix for a missing path whose name exists in another Unicode form, or "".
+
+    Parameters
+    ----------
+    path : str or path-like
+        A path that does not exist.
+
+    Returns
+    -------
+    str
+        Starts with "; " (appended to a message): the first missing part of `path`, the
+        entry of its folder that is the same name in another Unicode normal form, and
+        the fix; "" where there is none.
+
+    Notes
+    -----
+    An accented letter can be one code point (composed, NFC: what Linux keyboards and
+    most editors write) or a letter and a combining mark (decomposed, NFD: what macOS
+    HFS+ stored and what archives and copies made on a Mac carry on). The two look the
+    same in every listing, but on Linux they are different names, so a config typed
+    ``grün.csv`` does not find a copied ``grün.csv``: "does not exist" beside a file
+    that looks identical. ``fluxpart verify`` already looks for the other form of a
+    recorded name; a run reads only the name as written, so it is named here.
+
+    References
+    ----------
+    The Unicode Standard, Annex #15, "Unicode Normalization Forms" (NFC, NFD) (m);
+    Apple, "File System Programming Guide": HFS+ stores names decomposed (m).
+    """
+    import unicodedata
+
+    path = Path(path)
+    parts = path.parts
+    for depth in range(1, len(parts) + 1):
+        here = Path(*parts[:depth])
+        try:
+            if here.exists() or here.is_symlink():
+                continue
+            wanted = unicodedata.normalize("NFC", here.name)
+            twins = sorted(entry.name for entry in here.parent.iterdir()
+                           if entry.name != here.name
+                           and unicodedata.normalize("NFC", entry.name) == wanted)
+        except (OSError, ValueError):
+            return ""
+        if not twins:
+            return ""
+        form = "NFD" if unicodedata.is_normalized("NFC", here.name) else "NFC"
+        return (f"; {str(here.parent)!r} has {twins[0]!r}, the same name in another Unicode "
+                f"form ({form}: accented letters stored "
+                f"{'decomposed, as copies made on a Mac keep them' if form == 'NFD' else 'composed'}"
+                "), which is another name here: rename it, or write the path as it is "
+                "spelled there")
+    return ""
+
+
 def other_system_path_hint(text: str) -> str:
     """The fix for a path written in Windows form outside Windows, or "".
 

@@ -61,7 +61,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from ._validate import other_system_path_hint, read_toml
+from ._validate import other_system_path_hint, read_toml, unicode_form_hint
 from .config import Config, suggest_key
 from .errors import ConfigError, FluxpartError, FluxpartWarning, InputFileError, OutputError
 from .fingerprint import code_fingerprint
@@ -95,6 +95,12 @@ from .store import (
     set_mode,
     unreadable,
     write_table,
+)
+from .worker_match import (
+    client_environment,
+    mismatch_error,
+    older_worker_error,
+    scratch_folder_problem,
 )
 
 __all__ = [
@@ -406,7 +412,7 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
             matches = [full]
         else:
             raise ConfigError(f"{where}: no such file {str(full)!r}"
-                              f"{other_system_path_hint(pattern)}")
+                              f"{other_system_path_hint(pattern) or unicode_form_hint(full)}")
         for match in matches:
             given = _as_given(match)
             if given not in seen:
@@ -589,6 +595,23 @@ def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome
                            warnings=notes, **common)
     except Exception as error:  # isolate every site's failure
         return _failure(common, error)
+
+
+def _checked_site(key: str, config, directory, *, force: bool = False,
+                  client: dict | None = None) -> SiteOutcome:
+    """A batch task: :func:`run_site`, on a worker whose code matches its client's.
+
+    `client` is the client's :func:`fluxpart.worker_match.client_environment`; a
+    worker running other code fails the site (``WorkerMismatchError``) before reading
+    or writing anything. Dask sends this function by module and name, so a worker of
+    0.24.0 or earlier, which lacks it, fails the task as it unpacks it
+    (:func:`fluxpart.worker_match.older_worker_error`).
+    """
+    mismatch = mismatch_error(client)
+    if mismatch is not None:
+        return _failure({"key": key, "config": str(config), "directory": str(directory)},
+                        mismatch)
+    return run_site(key, config, directory, force=force)
 
 
 def tidy_skipped(directory) -> list[str]:
@@ -970,7 +993,7 @@ def _use_fork_server() -> None:
 
 
 def dask_setup(worker) -> None:
-    """Make a worker of fluxpart's local cluster ignore Ctrl-C (Dask worker preload).
+    """Dask worker preload: ignore Ctrl-C and take the loaded code's fingerprint.
 
     A terminal's Ctrl-C sends SIGINT to every process of the foreground process group,
     the local workers included: each printed a 30-line KeyboardInterrupt traceback
@@ -993,6 +1016,10 @@ def dask_setup(worker) -> None:
         signal.signal(signal.SIGINT, signal.SIG_IGN)
     except ValueError:         # not the main thread of its process: nothing to protect
         pass
+    # the fingerprint of the code this worker loaded, taken as it starts (about 4 ms): the
+    # client's is taken as the batch starts, so an edit to the package's files while the
+    # batch runs is not read as a worker of other code (fluxpart.worker_match)
+    code_fingerprint()
 
 
 def _check_cluster_options(scheduler, workers) -> None:
@@ -1068,6 +1095,9 @@ def _client(scheduler, workers, sites: int | None = None):
     # (see _start_method): 2 workers started and one demo site each, 5.2-6.2 -> 4.4-4.9 s
     # CPU of all processes (the imports paid once, not per worker); the wall time gains
     # less on an idle machine, where spawned workers import side by side on two cores.
+    scratch = scratch_folder_problem(dask.config.get("temporary-directory", None))
+    if scratch:
+        raise ConfigError(f"the local Dask cluster cannot start: {scratch}")
     method = _start_method()
     saved = dict(os.environ)
     try:
@@ -1168,6 +1198,7 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     workers of later clusters.
     """
     started = time.time()
+    code_fingerprint()               # the client's code as loaded now (fluxpart.worker_match)
     network = read_sites_file(sites_file)
     limit = (network.site_time_limit if site_time_limit is None
              else check_site_time_limit(site_time_limit, "--site-time-limit"))
@@ -1590,9 +1621,10 @@ def _run_tasks(client, sites, out: Path, force: bool, progress,
     from dask.distributed import wait
 
     futures, run = {}, uuid.uuid4().hex[:8]
+    environment = client_environment()   # each worker compares its own code with it
     for position, (key, config) in enumerate(sites):
-        future = client.submit(run_site, key, str(config), str(out / key), force=force,
-                               key=f"fluxpart-site-{key}-{run}")
+        future = client.submit(_checked_site, key, str(config), str(out / key), force=force,
+                               client=environment, key=f"fluxpart-site-{key}-{run}")
         futures[future] = (position, key, config)
     outcomes = [None] * len(sites)
     pending, started, finished = set(futures), {}, 0
@@ -1632,8 +1664,10 @@ def _run_tasks(client, sites, out: Path, force: bool, progress,
                                     "directory": str(out / key)},
                                    scheduler_lost_error(str(address), error))
             except Exception as error:  # a lost worker fails its site only
-                outcome = _lost_site(_failure({"key": key, "config": str(config),
-                                               "directory": str(out / key)}, error), error)
+                common = {"key": key, "config": str(config), "directory": str(out / key)}
+                older = older_worker_error(error)
+                outcome = (_failure(common, older) if older is not None
+                           else _lost_site(_failure(common, error), error))
             end(future, outcome)
         if not pending:
             break

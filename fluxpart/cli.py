@@ -255,8 +255,13 @@ def _check_output_folder(out: Path, site_name=None) -> None:
         with tempfile.TemporaryFile(dir=ancestor):
             pass
     except OSError as error:
+        from .store import full_disk_remedy
+
+        # ENOSPC here, with space to spare, is a file system out of inodes
+        remedy = (full_disk_remedy(ancestor) if error.errno == errno.ENOSPC
+                  else "choose a writable place")
         raise FluxpartError(f"--out {str(out)!r}: cannot write in {str(ancestor)!r} "
-                            f"({error.strerror or error}); choose a writable place") from None
+                            f"({error.strerror or error}); {remedy}") from None
 
 
 def _check_recordable_paths(site_config, config_path, out: Path) -> None:

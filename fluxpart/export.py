@@ -60,7 +60,14 @@ import pandas as pd
 
 from .errors import FluxpartError, InputFileError, OutputError
 from .manifest import recorded_paths
-from .store import file_mode, remove_stale, require_owner_access, set_mode
+from .store import (
+    file_mode,
+    full_disk_remedy,
+    remove_stale,
+    require_owner_access,
+    set_mode,
+    special_kind,
+)
 from .units import KG_CARBON_PER_UMOL
 
 __all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf",
@@ -609,8 +616,10 @@ def write_netcdf(result, path) -> Path:
                               f"file written beside it first ('.NAME.xxxxxxxx.tmp', 14 bytes "
                               f"longer: {error.strerror}); choose a name of at most "
                               f"{_name_limit(path.parent) - 14} bytes") from None
+        remedy = (full_disk_remedy(path.parent) if error.errno == errno.ENOSPC
+                  else "choose a writable place")
         raise OutputError(f"--netcdf {str(path)!r}: cannot write in {str(path.parent)!r} "
-                          f"({error.strerror or error}); choose a writable place") from None
+                          f"({error.strerror or error}); {remedy}") from None
     try:
         # inside: a network file system reports a failed write (full quota, I/O error) at
         # close, and the error then escaped as a traceback leaving the temporary file
@@ -638,9 +647,10 @@ def write_netcdf(result, path) -> Path:
         _close_quietly(handle)
         Path(temporary).unlink(missing_ok=True)
         reason = os.strerror(error.errno) if error.errno else str(error).split(" (")[0]
+        remedy = (full_disk_remedy(Path(path).parent) if error.errno == errno.ENOSPC
+                  else "free space, or choose another place")
         failed = OutputError(f"--netcdf {str(path)!r}: writing failed ({reason}); nothing was "
-                             "written and an existing file is unchanged: free space, or "
-                             "choose another place")
+                             f"written and an existing file is unchanged: {remedy}")
         # the HDF5 library may crash the interpreter's exit after such a failure (see
         # fluxpart.cli.main, which ends the process at once after printing this error)
         failed.end_process = True
@@ -682,6 +692,14 @@ def _check_target(path: Path, provenance, directory) -> None:
     """Refuse to replace a file fluxpart did not write, or one the result was computed from."""
     if not path.exists():
         return
+    special = special_kind(path)
+    if special:
+        # opened to read its first bytes, a pipe with no writer blocked without end
+        # (``--netcdf /dev/stdout | ...``, a named pipe): fifo(7) (m)
+        raise OutputError(f"--netcdf {str(path)!r} is {special}, not a file: the NetCDF is "
+                          "written to a temporary file beside the target and renamed into "
+                          "place, so it cannot go to a pipe or a device; give a file name "
+                          "(then copy or send that file)")
     recorded = recorded_paths(provenance if isinstance(provenance, dict) else {},
                               directory if directory is not None else Path.cwd())
     for source in recorded:

@@ -81,6 +81,7 @@ from .store import (
     _stored_index,
     file_mode,
     folder_mode,
+    full_disk_remedy,
     remove_stale,
     require_owner_access,
     set_mode,
@@ -399,8 +400,10 @@ def write_csv(result, folder) -> Path:
                      started)
         staging = Path(tempfile.mkdtemp(prefix=f".{stem}.", suffix=".tmp", dir=parent))
     except OSError as error:
+        remedy = (full_disk_remedy(parent) if error.errno == errno.ENOSPC
+                  else "choose a writable place")
         raise OutputError(f"--csv {str(target)!r}: cannot write in {str(parent)!r} "
-                          f"({error.strerror or error}); choose a writable place") from None
+                          f"({error.strerror or error}); {remedy}") from None
     try:
         for name, data in files.items():
             path = staging / name
@@ -423,7 +426,8 @@ def write_csv(result, folder) -> Path:
                               "this export ran; it is left as that process wrote it and "
                               "nothing of this export was written: give a new folder") from None
         remedy = ("raise the file-size limit (`ulimit -f`), or choose another place"
-                  if error.errno == errno.EFBIG else "free space, or choose another place")
+                  if error.errno == errno.EFBIG else full_disk_remedy(target.parent)
+                  if error.errno == errno.ENOSPC else "free space, or choose another place")
         raise OutputError(f"--csv {str(target)!r}: writing failed ({reason}); nothing was "
                           f"written: {remedy}") from None
     except BaseException:

@@ -176,21 +176,33 @@ def _matplotlib(*, setter_docs=True):
     beside the command's own lines, on every ``report``. The figures are the same
     either way, so its log is held to errors while it is imported.
 
+    The figures are drawn on the Agg canvas without pyplot, so no backend is used; yet
+    matplotlib checks ``MPLBACKEND`` when it is imported, and a value it refuses (a
+    notebook's ``module://matplotlib_inline.backend_inline`` inherited by ``!fluxpart
+    report`` where that package is missing, a typing slip) ended ``report`` in a
+    ValueError traceback. The variable is set aside while matplotlib is imported and
+    put back after (the page and figures are the same).
+
     References
     ----------
     matplotlib documentation, "Location of the configuration and cache folders"
-    (``MPLCONFIGDIR``; the temporary folder where it is not writable) (m).
+    (``MPLCONFIGDIR``; the temporary folder where it is not writable) and "Backends"
+    (``MPLBACKEND`` read at import) (m).
     """
     import logging
+    import os
 
     log = logging.getLogger("matplotlib")
     level = log.level
     if level < logging.ERROR:
         log.setLevel(logging.ERROR)
+    backend = os.environ.pop("MPLBACKEND", None)
     try:
         return _import_matplotlib(setter_docs=setter_docs)
     finally:
         log.setLevel(level)
+        if backend is not None:
+            os.environ["MPLBACKEND"] = backend
 
 
 def _import_matplotlib(*, setter_docs=True):

@@ -43,7 +43,7 @@ def _stamp(when) -> str:
     return pd.Timestamp(when).strftime("%Y-%m-%d %H:%M")
 
 
-def located_changes(site_config: Path, input_path: Path, stored: pd.DataFrame,
+def located_changes(site_config: Path, input_path, stored: pd.DataFrame,
                     file_columns: dict | None = None) -> str:
     """Say where a changed input file differs from the input values a result holds.
 
@@ -51,8 +51,10 @@ def located_changes(site_config: Path, input_path: Path, stored: pd.DataFrame,
     ----------
     site_config : pathlib.Path
         The site config the run read (the recorded text), which says how to read the file.
-    input_path : pathlib.Path
-        The input file as it is now (its SHA-256 is not the recorded one).
+    input_path : pathlib.Path or list of pathlib.Path
+        The input file as it is now (its SHA-256 is not the recorded one), or, for a
+        result read from several files, every file as it is now in the recorded order
+        (read together, as the run read them).
     stored : pandas.DataFrame
         The result's stored ``timeseries`` table (index ``time``, interval starts in
         local standard time): its input columns (``nee``, ``rg``, ``tair``, ``vpd``,
@@ -82,7 +84,8 @@ def located_changes(site_config: Path, input_path: Path, stored: pd.DataFrame,
     if stored is None or not isinstance(stored.index, pd.DatetimeIndex):
         return ""
     try:
-        frame, _ = read_site_config(site_config, input_paths=[input_path]).read()
+        paths = list(input_path) if isinstance(input_path, (list, tuple)) else [input_path]
+        frame, _ = read_site_config(site_config, input_paths=paths).read()
     except FluxpartError as error:
         return f"read as the run read it, it is refused now ({error})"
     except (OSError, ValueError) as error:

@@ -49,7 +49,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from ._validate import other_system_path_hint, read_toml, refuse_binary
+from ._validate import other_system_path_hint, read_toml, refuse_binary, unicode_form_hint
 from .config import Config, setting_text, suggest_key
 from .errors import (
     ConfigError,
@@ -1691,7 +1691,8 @@ def _require_input_file(path: Path) -> None:
         broken = broken_link(path)
         if broken:
             raise InputFileError(f"[input] path: input file {str(path)!r} {broken}")
-        hint = other_system_path_hint(path) or _case_hint(path)
+        hint = (other_system_path_hint(path) or _case_hint(path)
+                or unicode_form_hint(path))
         raise InputFileError(f"[input] path: input file {str(path)!r} does not exist{hint}")
     if not path.is_file():
         raise InputFileError(f"[input] path: {str(path)!r} is not a file")

@@ -474,6 +474,14 @@ def _read_manifest(directory: Path) -> dict:
         raise InputFileError(f"the result folder {str(directory)!r} does not exist: give the "
                              "folder that fluxpart run or batch wrote (its --out)")
     if not Path(directory).is_dir():
+        from .store import special_kind
+
+        special = special_kind(directory)
+        if special:
+            # read for an archive's first bytes, a pipe nobody writes blocked without end
+            raise InputFileError(f"{str(directory)!r} is {special}, not a result folder: "
+                                 "give the folder that fluxpart run or batch wrote (its "
+                                 "--out), unpacked where it was sent packed")
         packed = archive_kind(Path(directory))
         if packed:
             raise InputFileError(f"{str(directory)!r} is a {packed} archive, not a result "

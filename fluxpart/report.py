@@ -68,7 +68,7 @@ from .resultdir import (
     replace_refusal,
     swapped_in,
 )
-from .store import atomic_write_bytes, require_owner_access
+from .store import atomic_write_bytes, full_disk_remedy, require_owner_access
 from .uncertainty_parts import PART_LABELS, uncertainty_parts
 from .units import CARBON_UNIT, FLUX_UNIT, T_CO2_HA_PER_G_C_M2, display_unit
 
@@ -1195,8 +1195,10 @@ def build_report(directory, out=None, *, progress=None) -> Path:
                 atomic_write_bytes(staging / figure.name, figure.png)
             atomic_write_bytes(staging / "report.html", page)
     except OSError as error:        # a read-only medium, no permission, a full disk
-        remedy = ("free space, or give --out a writable folder"
-                  if error.errno in (errno.ENOSPC, errno.EDQUOT)
+        remedy = (full_disk_remedy(out.parent, "free space, or give --out a writable folder")
+                  if error.errno == errno.ENOSPC
+                  else "free space, or give --out a writable folder"
+                  if error.errno == errno.EDQUOT
                   else "raise the file-size limit (ulimit -f), or give --out a folder on "
                   "another file system" if error.errno == errno.EFBIG
                   else "give --out a writable folder (e.g. --out ~/report)")

@@ -73,6 +73,7 @@ from .store import (
     atomic_write_bytes,
     file_sha256,
     folder_mode,
+    full_disk_remedy,
     read_table,
     require_owner_access,
     set_mode,
@@ -190,8 +191,18 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
             raise OutputError(f"the lock file {str(path)!r} beside the output folder is a "
                               "folder, which fluxpart never makes; remove it (or rename it) "
                               "and run again") from None
+        if path.is_symlink():
+            # a link where the lock file goes (a tree copied with `cp -s`, a link planted in
+            # a shared folder): never followed (filelock opens with O_NOFOLLOW (m)), and
+            # "choose a writable output folder" sent the user after a permission
+            raise OutputError(f"the lock file {str(path)!r} beside the output folder is a "
+                              f"symbolic link (to {os.readlink(path)!r}), which fluxpart "
+                              "never makes and never follows; remove the link (its target "
+                              "is untouched) and run again") from None
+        remedy = (full_disk_remedy(path.parent) if error.errno == errno.ENOSPC
+                  else "choose a writable output folder")
         raise OutputError(f"cannot create the lock file {str(path)!r} beside the output folder: "
-                          f"{error.strerror or error}; choose a writable output folder") from None
+                          f"{error.strerror or error}; {remedy}") from None
     try:
         yield path
     finally:
@@ -775,7 +786,9 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
             # EFBIG: a table beyond the process's file-size limit (ulimit -f, a batch
             # job's or a container's), which no free space would help (setrlimit(2) (m))
             fix = ("; raise the file-size limit (ulimit -f) or run where there is none"
-                   if error.errno == errno.EFBIG else "")
+                   if error.errno == errno.EFBIG else
+                   f"; {full_disk_remedy(directory.parent)}" if error.errno == errno.ENOSPC
+                   else "")
             raise OutputError(f"writing the result folder {str(directory)!r} failed: "
                               f"{error.strerror or error}{where}; the earlier result, if any, "
                               f"is unchanged{fix}") from None

@@ -49,8 +49,9 @@ import pyarrow.parquet as pq
 from .errors import InputFileError, OutputError
 
 __all__ = ["PANDAS_ATTRS_KEY", "atomic_write_bytes", "column_units", "file_mode", "file_sha256",
-           "folder_mode", "parquet_source", "read_table", "reader_attrs", "remove_stale",
-           "set_mode", "table_shape", "unreadable", "write_table"]
+           "folder_mode", "full_disk_remedy", "parquet_source", "read_table", "reader_attrs",
+           "remove_stale", "set_mode", "special_kind", "table_shape", "unreadable",
+           "write_table"]
 
 _SCHEMA_KEY = b"fluxpart"
 #: The file-level key-value metadata key whose JSON ``pandas.read_parquet`` (pyarrow
@@ -203,6 +204,99 @@ def remove_stale(folder, pattern, before: float) -> list[str]:
             continue
         removed.append(entry.name)
     return removed
+
+
+#: Free inodes below which a "No space left on device" is named as a lack of inodes: a
+#: write needs a few dozen (one per table, temporary file and folder), and a file system
+#: whose space, not inodes, ran out keeps thousands per gigabyte free (ext4 makes one
+#: per 16 KiB by default, mke2fs.conf(5) (m)).
+_FEW_INODES = 1000
+
+
+def full_disk_remedy(path, fallback: str = "free space, or choose another place") -> str:
+    """What to do after a write near `path` failed with ENOSPC.
+
+    Parameters
+    ----------
+    path : str or path-like
+        The folder written into (or any existing path on its file system).
+    fallback : str, optional
+        The remedy where space, not inodes, ran out.
+
+    Returns
+    -------
+    str
+        The remedy: `fallback`, or, where the file system has fewer than
+        :data:`_FEW_INODES` free inodes, a sentence naming the inodes (``df -i``), the
+        free space left and what to do.
+
+    Notes
+    -----
+    ENOSPC is returned both when a file system's blocks and when its inodes (file
+    entries) are used up (open(2), mkdir(2) (m)): a small volume or tmpfs holding many
+    small files (``nr_inodes``), or a logger's card formatted for few files, refuses new
+    files with space to spare. "Free space" then points the user at ``df -h``, which
+    shows room, and the write fails again. The count is read after the failed write was
+    cleaned up, so it holds the inodes freed by the clean-up (a few dozen) too.
+
+    References
+    ----------
+    statvfs(3): ``f_favail``, free inodes for unprivileged users; ``f_files`` 0 where
+    a file system has no fixed number (btrfs) (m).
+    """
+    try:
+        info = os.statvfs(_existing(Path(path)))
+    except (OSError, ValueError):
+        return fallback
+    if info.f_files == 0 or info.f_favail >= _FEW_INODES:
+        return fallback
+    free = info.f_bavail * info.f_frsize / 1e6
+    return (f"the file system has only {info.f_favail} free inodes (file entries, `df -i`) "
+            f"of {info.f_files} though {free:.1f} MB are free: remove files there (or "
+            "make a file system with more inodes), or choose another place")
+
+
+def special_kind(path) -> str:
+    """``"a named pipe"``, ``"a device"`` or ``"a socket"`` for such a `path`, else ``""``.
+
+    Parameters
+    ----------
+    path : str or path-like
+        Any path; a symbolic link is followed (``/dev/stdout`` is the pipe or terminal
+        it leads to).
+
+    Returns
+    -------
+    str
+        The kind, with its article, or ``""`` for a plain file, a folder or no entry.
+
+    Notes
+    -----
+    Opening a named pipe for reading blocks until a writer opens it (fifo(7) (m)): a
+    command that reads the first bytes of what it was given (to tell an archive, or a
+    NetCDF file it may replace) waited without end on a pipe nobody writes. Ask this
+    first, without opening.
+    """
+    import stat
+
+    try:
+        mode = os.stat(path).st_mode
+    except (OSError, ValueError):
+        return ""
+    if stat.S_ISFIFO(mode):
+        return "a named pipe"
+    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
+        return "a device"
+    if stat.S_ISSOCK(mode):
+        return "a socket"
+    return ""
+
+
+def _existing(path: Path) -> Path:
+    """`path` or its nearest existing parent."""
+    while not path.exists() and path.parent != path:
+        path = path.parent
+    return path
 
 
 def file_sha256(path) -> str:

@@ -1017,6 +1017,11 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
     that is the recorded site config (`config_sha`) is refused as swapped options. A file
     holding the recorded text re-saved otherwise (line endings, encoding) is restored to
     the recorded bytes in `scratch` and used, with a note (:func:`_restored_text`).
+
+    Where a file of several differs, the difference names the first, and the paths
+    returned are every file as it is now (to locate the edit,
+    :func:`fluxpart.input_changes.located_changes`); None where one of the others cannot
+    be found (the first difference stands alone, as before).
     """
     parts = recorded.get("files") if isinstance(recorded.get("files"), list) else None
     wanted = parts if parts else [recorded]
@@ -1038,11 +1043,13 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
             beside_config = []
     if given:
         given = _in_recorded_order(wanted, [Path(p) for p in given], config_sha)
-    found = []
+    found, first = [], None
     for number, entry in enumerate(wanted):
         sha = entry.get("sha256")
         if given:
             path = Path(given[number])
+        elif first is not None and not _findable(directory, entry, beside_config):
+            return None, first       # the edit is named by its file alone, as before
         else:
             path = recorded_path(directory, entry)
             if not _matching(path, sha):
@@ -1069,8 +1076,15 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
         if actual != sha:
             restored = _restored_text(path, sha, scratch, number)
             if restored is None:
-                return None, Difference("input", "input", column="input file", row=str(path),
-                                        stored=str(sha), recomputed=actual)
+                changed = Difference("input", "input", column="input file", row=str(path),
+                                     stored=str(sha), recomputed=actual)
+                if not parts:
+                    return None, changed
+                # several files: the others are looked for too, so that the whole input
+                # as it is now can be read and compared with the values the result holds
+                first = first or changed
+                found.append(path)
+                continue
             notes.append(f"input file: {str(path)!r} holds the recorded file's text re-saved "
                          "otherwise (line endings, byte-order mark, encoding, final line "
                          "break or gzip: git core.autocrlf, unzip -a, an editor, an "
@@ -1079,7 +1093,15 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
                          "rerun")
             path = restored
         found.append(path)
-    return (found if parts else found[0]), None
+    return (found if parts else found[0]), first
+
+
+def _findable(directory: Path, entry: dict, beside_config: list) -> bool:
+    """Whether a recorded input file is at its recorded place or beside the site config."""
+    path = recorded_path(directory, entry)
+    if path is not None and path.is_file():
+        return True
+    return any(_matching(p, entry.get("sha256")) for p in beside_config)
 
 
 #: Text encodings an editor or a shell may re-save a text file in, told from its
@@ -1205,12 +1227,14 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
     data_path, changed = _input_files(directory, recorded_input, input_path, locating,
                                       provenance["site_config"].get("sha256"), scratch, notes)
     if changed is not None:
-        if changed.column == "input file" and not isinstance(recorded_input.get("files"),
-                                                             list):
+        several = isinstance(recorded_input.get("files"), list)
+        if changed.column == "input file" and (data_path is not None or not several):
             from .input_changes import located_changes
 
             reader = provenance.get("reader")
-            located = located_changes(site_config, Path(changed.row), stored_timeseries,
+            # several files: all of them as they are now, read together as the run did
+            located = located_changes(site_config, data_path if several
+                                      else Path(changed.row), stored_timeseries,
                                       reader.get("columns") if isinstance(reader, dict)
                                       else None)
             if located:
