@@ -101,6 +101,28 @@ constant or form of this script with no source):
 - The truth: GPP = uptake; Reco = every release (respiration, vented vadose air,
   photodegradation); NEE = Reco - GPP. Carbon per record: umol m-2 s-1 x seconds x 12.011e-6
   g C umol-1 (standard atomic weight (m)).
+
+Findings (0.24.0 at 2fef67d, first draw; DEVELOPERS.md has the figures and the variants):
+
+- NEE covered in 10 of 10 site-years, median |error| 4.2 g C m-2, worst -18.7 (Q:2022: a
+  7-day outage of every sensor in the wet season, -12.6 of it, inside +-35).
+- P, nighttime Reco +49.5 / +19.8 % (three draws: +3 to +66 %): under the midnight sun
+  before green-up the low-light rule kept only windows whose noise tilted the light slope
+  towards uptake (June 16.9 g C m-2 for 2.5 true), and winter windows at -28 degC held Rref
+  of hundreds to 1e5 (the Lloyd-Taylor term ~1e-7). Branch trial14 (flat low-light fit where
+  no light response is resolved; windows whose Rref standard error exceeds 100 umol m-2 s-1
+  dropped): +18.1 / +6.1 % (three draws -6 to +18 %). The daytime Reco of the polar night is
+  extrapolated from autumn windows (+21 and +29 g C m-2 in November-December 2021 where the
+  night fits chose tsoil): not changed.
+- D, Reco -20 to -26 % by both methods (outside): photodegradation and vented vadose air,
+  which no partitioning of NEE separates (``nophoto,novent``: -10 / -11 %).
+- F, nighttime Reco -7 % with or without the defoliation, planted u*, noise or gaps:
+  respiration rising by day (maintenance on air temperature, growth of yesterday's GPP).
+- Q, daytime Reco +6.5 / +9.2 %: the method's rectangular hyperbola on a tanh response.
+- u* within 20 % in 4 of 10: this loss keeps 93 % of the flux at 0.8 of the planted
+  threshold, where the plateau test reads it; NEE does not follow.
+- The zero curtain, the thaw depth, the declared clear-cut, the defoliation, the five layouts
+  and the absent polar-night rows cost nothing measurable.
 """
 from __future__ import annotations
 
