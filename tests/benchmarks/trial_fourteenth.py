@@ -111,9 +111,11 @@ Findings (0.24.0 at 2fef67d, first draw; DEVELOPERS.md has the figures and the v
   towards uptake (June 16.9 g C m-2 for 2.5 true), and winter windows at -28 degC held Rref
   of hundreds to 1e5 (the Lloyd-Taylor term ~1e-7). Branch trial14 (flat low-light fit where
   no light response is resolved; windows whose Rref standard error exceeds 100 umol m-2 s-1
-  dropped): +18.1 / +6.1 % (three draws -6 to +18 %). The daytime Reco of the polar night is
-  extrapolated from autumn windows (+21 and +29 g C m-2 in November-December 2021 where the
-  night fits chose tsoil): not changed.
+  dropped): +18.1 / +6.1 % (three draws -6 to +18 %). Daytime Reco +34.5 / +27.7 %, more
+  than half of it from October to May: daytime windows anchored on night Rref of 250-420
+  +- 120-210 in February carried their Rref across the polar night (+21 and +29 g C m-2 in
+  November-December once the night fits chose tsoil). Branch trial14 (such anchors and
+  fitted Rref refused): +27.7 / +15.8 % (three draws: median +29 -> +22 %).
 - D, Reco -20 to -26 % by both methods (outside): photodegradation and vented vadose air,
   which no partitioning of NEE separates (``nophoto,novent``: -10 / -11 %).
 - F, nighttime Reco -7 % with or without the defoliation, planted u*, noise or gaps:
