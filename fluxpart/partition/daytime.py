@@ -61,7 +61,8 @@ Rules and their sources (``(m)`` = recalled from memory, check against the paper
   night NEE with the window's E0 (a closed form), with its standard error; at
   least `night_min_points` records (5, our choice) and a standard error of at most
   100 µmol m-2 s-1 (the plausible range of a flux; since round trial14: on the
-  fourteenth trial's tundra, night NEE at −26 °C divided by a factor of ~1e-3 gave night
+  fourteenth trial's tundra on soil temperature, night NEE at −26 °C divided by a factor
+  of ~1e-3 gave night
   Rref of 250–420 ± 120–210 in February, whose refits carried 50 g C m-2 of daytime
   Reco into the two months of polar night, where the truth is ~0). It starts the fit,
   and it replaces the fitted Rref where the daytime fit cannot be trusted (below).

@@ -80,11 +80,6 @@ the weeks of midnight sun left annual Reco up to 34 % low)."""
 #: plausible maximum of NEE itself (``VARIABLES["nee"].maximum``), above which the
 #: window's night records do not tell Rref from any respiration a record can hold.
 RREF_SE_LIMIT = VARIABLES["nee"].maximum
-#: The low-light rule's straight light response is used only where its slope lies this
-#: many standard errors below zero (a light response the window resolves); elsewhere Rref
-#: is the window's low-light NEE with the slope held at 0. 1.96: the two-sided 95 % point
-#: of the normal distribution (common practice).
-LOW_LIGHT_SLOPE_Z = 1.96
 # Levenberg–Marquardt controls of the batched E0 fit (our choices): relative
 # parameter change and relative SSR change below which a window has converged.
 _LM_MAX_ITERATIONS = 200
@@ -1166,8 +1161,8 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
     `rref_min_points` records, a negative Rref or a standard error above
     :data:`RREF_SE_LIMIT` (since round trial14: nights so cold that ``f`` is ~0, e.g.
     1e-7 at −28 °C with E0 = 419 K, gave Rref of ±1e5 whose interpolation carried them
-    to warmer records) are dropped, and Rref is interpolated across them. Six records are at least two nights' worth of
-    measured night NEE at most sites; with the random error of one record
+    to warmer records) are dropped, and Rref is interpolated across them. Six records
+    are at least two nights' worth of measured night NEE at most sites; with the random error of one record
     about as large as night respiration itself, Rref from two to five records
     is mostly noise, and such windows sit where night data thin out (edges of
     long gaps, the short nights of a high-latitude summer), where they anchor
@@ -1182,16 +1177,16 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
     below `low_light_rg` measured NEE is ``Rref f - a Rg`` with the slope ``a`` the
     window's light-use efficiency, and the intercept at ``Rg = 0`` is respiration,
     as night records measure it (the extrapolation to zero light of Kok 1948 (m)).
-    Both coefficients by least squares (a 2 x 2 system per window), with ``se(Rref) =
-    sqrt(s² Σx² / det)``, ``s² = SSR / (n - 2)``. Where the window does not resolve a
-    light response (``a`` less than :data:`LOW_LIGHT_SLOPE_Z` standard errors above 0:
-    a canopy not yet photosynthesising under the midnight sun, snow, noise), Rref is
-    fitted with ``a = 0`` as for night records (since round trial14: before, windows
-    with ``a < 0`` were rejected, so where there was no light response only those the
-    noise tilted towards uptake were kept, and their intercepts read Rref high: on the
-    fourteenth trial's tundra before green-up two to eight times the planted Rref). The
-    window is kept with at least `rref_min_points` records, a positive determinant,
-    Rref >= 0 and ``se(Rref)`` at most :data:`RREF_SE_LIMIT`. A light response that already
+    Both coefficients by least squares (a 2 x 2 system per window); the window is
+    kept with at least `rref_min_points` records, a positive determinant, Rref
+    >= 0 and ``a >= 0`` (more light, more uptake), with ``se(Rref) =
+    sqrt(s² Σx² / det)``, ``s² = SSR / (n - 2)``. Where the canopy does not
+    photosynthesise (midnight sun over snow or a thawing tundra before green-up) the
+    true ``a`` is 0 and only the windows the noise tilted towards uptake are kept, whose
+    intercepts read Rref high (the fourteenth trial's tundra: June Reco 16.9 g C m-2 for
+    2.5); fitting such windows with ``a = 0`` was tried in round trial14 and not kept, as
+    it read the generated polar fens' Reco low where their light response is real but
+    unresolved (see the changelog). A light response that already
     bends below `low_light_rg` makes the line's intercept low by a part of the
     bend (a concave curve lies above its chord), so Reco there is a lower estimate.
 
@@ -1307,19 +1302,9 @@ def _low_light_rref(seconds, starts, ends, nee, temperature, is_night, e0, rg,
         residual = np.where(mask, y - rref[:, None] * f - slope[:, None] * x, 0.0)
         variance = (residual * residual).sum(1) / (counts - 2)
         rref_se = np.sqrt(variance * sxx / det)
-        slope_se = np.sqrt(variance * sff / det)
         mean_e0 = e0_pad.sum(1) / counts
-        # no light response resolved (slope not below zero by LOW_LIGHT_SLOPE_Z standard
-        # errors: a canopy not yet photosynthesising under the midnight sun, or noise):
-        # Rref with the slope held at 0, as for night records, rather than the line's
-        # intercept from whichever windows the noise tilted downwards
-        flat = ~(slope + LOW_LIGHT_SLOPE_Z * slope_se < 0)
-        rref_flat = sfy / sff
-        residual_flat = np.where(mask, y - rref_flat[:, None] * f, 0.0)
-        se_flat = np.sqrt((residual_flat * residual_flat).sum(1) / (counts - 1) / sff)
-        rref, rref_se = np.where(flat, rref_flat, rref), np.where(flat, se_flat, rref_se)
     good = ((counts >= max(min_points, 3)) & (det > 0) & np.isfinite(rref) & (rref >= 0)
-            & np.isfinite(rref_se) & ~(rref_se > RREF_SE_LIMIT))
+            & (slope <= 0) & np.isfinite(rref_se))
     return {"rref": np.where(good, rref, np.nan), "rref_se": np.where(good, rref_se, np.nan),
             "points": counts, "e0": mean_e0}
 

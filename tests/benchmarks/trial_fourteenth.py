@@ -106,16 +106,16 @@ Findings (0.24.0 at 2fef67d, first draw; DEVELOPERS.md has the figures and the v
 
 - NEE covered in 10 of 10 site-years, median |error| 4.2 g C m-2, worst -18.7 (Q:2022: a
   7-day outage of every sensor in the wet season, -12.6 of it, inside +-35).
-- P, nighttime Reco +49.5 / +19.8 % (three draws: +3 to +66 %): under the midnight sun
-  before green-up the low-light rule kept only windows whose noise tilted the light slope
-  towards uptake (June 16.9 g C m-2 for 2.5 true), and winter windows at -28 degC held Rref
-  of hundreds to 1e5 (the Lloyd-Taylor term ~1e-7). Branch trial14 (flat low-light fit where
-  no light response is resolved; windows whose Rref standard error exceeds 100 umol m-2 s-1
-  dropped): +18.1 / +6.1 % (three draws -6 to +18 %). Daytime Reco +34.5 / +27.7 %, more
-  than half of it from October to May: daytime windows anchored on night Rref of 250-420
-  +- 120-210 in February carried their Rref across the polar night (+21 and +29 g C m-2 in
-  November-December once the night fits chose tsoil). Branch trial14 (such anchors and
-  fitted Rref refused): +27.7 / +15.8 % (three draws: median +29 -> +22 %).
+- P, nighttime Reco +49.5 / +19.8 % (three draws: +3 to +66 %, median +26 %): under the
+  midnight sun before green-up the low-light rule keeps only windows whose noise tilted the
+  light slope towards uptake (June 16.9 g C m-2 for 2.5 true); winter windows at -28 degC
+  held Rref of hundreds to 1e5 (the Lloyd-Taylor term ~1e-7). Branch trial14 refuses Rref
+  whose standard error exceeds 100 umol m-2 s-1 in both methods (first draw identical,
+  third +66.2 / +26.1 -> +42.7 / +12.2 %); a flat low-light fit where no slope is resolved
+  (+18.1 / +6.1 %) was not kept: it read generated polar fens low. Daytime Reco +16 to +41 %,
+  more than half of it October to May (daytime windows anchored on poorly resolved night
+  Rref, interpolated across the polar night; 20.9 + 28.7 g C m-2 in November-December when
+  soil temperature drove respiration, 2.2 + 2.5 with the branch's anchors refused).
 - D, Reco -20 to -26 % by both methods (outside): photodegradation and vented vadose air,
   which no partitioning of NEE separates (``nophoto,novent``: -10 / -11 %).
 - F, nighttime Reco -7 % with or without the defoliation, planted u*, noise or gaps:
