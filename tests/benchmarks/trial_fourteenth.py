@@ -110,7 +110,7 @@ Findings (0.24.0 at 2fef67d, first draw; DEVELOPERS.md has the figures and the v
   midnight sun before green-up the low-light rule keeps only windows whose noise tilted the
   light slope towards uptake (June 16.9 g C m-2 for 2.5 true); winter windows at -28 degC
   held Rref of hundreds to 1e5 (the Lloyd-Taylor term ~1e-7). Branch trial14 refuses Rref
-  whose standard error exceeds 100 umol m-2 s-1 in both methods (first draw identical,
+  whose standard error exceeds 100 umol m-2 s-1 in both methods (first draw's estimates the same,
   third +66.2 / +26.1 -> +42.7 / +12.2 %); a flat low-light fit where no slope is resolved
   (+18.1 / +6.1 %) was not kept: it read generated polar fens low. Daytime Reco +16 to +41 %,
   more than half of it October to May (daytime windows anchored on poorly resolved night
