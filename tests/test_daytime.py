@@ -853,3 +853,42 @@ def test_a_respiration_curve_beyond_any_measurable_flux_is_rejected():
     assert (1e7 * np.exp(150.0 * arrhenius[applied])).max() > 100.0
     # Rref 2 stays within the range everywhere: nothing else rejected
     assert (2.0 * np.exp(150.0 * arrhenius)).max() < 100.0
+
+
+def test_an_rref_nights_too_cold_to_resolve_is_neither_anchor_nor_kept():
+    """The fourteenth trial's tundra (round trial14): in the polar night the daytime
+    windows of February held night Rref of 250-420 umol m-2 s-1 (standard errors in the
+    hundreds: night NEE at -26 degC divided by a Lloyd-Taylor factor of ~1e-3) and windows
+    without one kept their own fitted Rref of 1e5; interpolated across the two dark months
+    they gave 50 g C m-2 of daytime Reco for a truth of ~0. A night Rref whose standard
+    error exceeds the plausible range of a flux (100 umol m-2 s-1, fluxpart.variables) is no
+    anchor, and a fitted Rref with such an error is unresolved (refit with the night Rref,
+    or rejected without one). The closed form is checked against numpy's least squares;
+    Lloyd & Taylor (1994) eq. 11 is written out here."""
+    from fluxpart.partition import daytime
+
+    rng = np.random.default_rng(1401)
+    n = 60
+    temps = np.vstack([np.full(n, 5.0), np.full(n, -40.0)]) + rng.normal(0, 0.3, (2, n))
+    factor = np.exp(180.0 * (1 / 56.02 - 1 / (temps + 273.15 - 227.13)))
+    nee = 2.0 * factor + rng.normal(0, 0.3, (2, n))
+    windows = {"night_nee": nee, "night_factor": factor, "night_weight": np.ones((2, n)),
+               "night_points": np.array([n, n])}
+    rref, se = daytime._night_rref(windows, 5)
+    coef, ssr, *_ = np.linalg.lstsq(factor[0][:, None], nee[0], rcond=None)
+    assert rref[0] == pytest.approx(coef[0], rel=1e-10)
+    assert se[0] == pytest.approx(np.sqrt(ssr[0] / (n - 1) / (factor[0] ** 2).sum()), rel=1e-8)
+    cold_se = np.sqrt(((nee[1] - (nee[1] @ factor[1]) / (factor[1] @ factor[1]) * factor[1])
+                       ** 2).sum() / (n - 1) / (factor[1] @ factor[1]))
+    assert cold_se > 100.0 and np.isnan(rref[1]) and np.isnan(se[1])
+    # a fitted Rref of 5e4 +- 9e4 without a night Rref: unresolved, rejected
+    theta = np.array([[0.02, 10.0, 0.0, 5e4], [0.02, 10.0, 0.0, 2.0]])
+    errors = np.array([[0.002, 1.0, 0.0, 9e4], [0.002, 1.0, 0.0, 0.2]])
+    fixed = np.array([[False, False, True, False]] * 2)
+    ok = np.ones(2, dtype=bool)
+    lower, upper = np.array([0.0, 0.0, 0.0, 0.0]), np.array([0.22, 250.0, np.inf, np.inf])
+    status, reason, refit = daytime._judge(
+        theta, errors, fixed, ok, ok, lower, upper, np.array([np.nan, 2.1]),
+        np.array([np.nan, 0.2]), 1.96, 0.5, np.zeros(2, dtype=bool))
+    assert list(status) == ["rejected", "accepted"] and not refit.any()
+    assert reason[0] == "rref not resolved by the daytime data; too few night records to refit"

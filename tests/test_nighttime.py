@@ -805,3 +805,37 @@ def test_joint_e0_with_zero_fluxes_equals_the_stable_sort_profile(rng, monkeypat
                                                         strict=True):
         np.testing.assert_array_equal(deviation.view(np.int64), deviation_s.view(np.int64))
         np.testing.assert_array_equal(rref.view(np.int64), rref_s.view(np.int64))
+
+
+# --------------------------------------------------------------------------- #
+# Respiration near the noise floor (round trial14)
+# --------------------------------------------------------------------------- #
+def test_rref_window_of_nights_too_cold_to_resolve_it_is_dropped():
+    """Lloyd & Taylor (1994) eq. 11 with E0 = 400 K at -40 degC is about 1e-12 of its
+    value at 10 degC: a window of such nights divides noise by ~0, and its Rref (and
+    standard error) ran to 1e5 umol m-2 s-1, which the interpolation then carried to
+    warmer records. A window whose Rref's standard error exceeds the plausible range of
+    NEE itself (VARIABLES, 100 umol m-2 s-1) is now dropped and interpolated across.
+    Invented known-truth data: Rref 1.5 planted, a cold spell of 12 days."""
+    from fluxpart.partition import nighttime
+    from fluxpart.variables import VARIABLES
+
+    assert nighttime.RREF_SE_LIMIT == VARIABLES["nee"].maximum
+    assert _eq11(-40.0, 1.0, 400.0) < 1e-10          # eq. 11 written out independently
+    rng = np.random.default_rng(142)
+    index = pd.date_range("2021-01-01", periods=48 * 40, freq="30min")
+    days = np.asarray((index - index[0]) / pd.Timedelta(days=1))
+    hour = index.hour.to_numpy() + index.minute.to_numpy() / 60.0
+    night = (hour < 6.0) | (hour >= 19.0)
+    cold = (days >= 14) & (days < 26)
+    temperature = np.where(cold, -40.0, 5.0) + rng.normal(0.0, 0.5, len(index))
+    nee = np.where(night, _eq11(temperature, 1.5, 400.0) + rng.normal(0.0, 0.3, len(index)),
+                   np.nan)
+    windows = nighttime.fit_rref_windows(index, nee, temperature, night,
+                                         np.full(len(index), 400.0))
+    assert (windows["rref_se"] <= nighttime.RREF_SE_LIMIT).all()
+    centres = np.asarray((windows["window_centre"] - index[0]) / pd.Timedelta(days=1))
+    assert not ((centres > 15) & (centres < 25)).any()
+    rref = nighttime.rref_per_record(index, windows)
+    assert np.abs(rref / 1.5 - 1.0).max() < 0.25
+

@@ -59,8 +59,13 @@ Rules and their sources (``(m)`` = recalled from memory, check against the paper
   night data (the night Rref below).
 - **Night Rref.** For every window the least-squares Rref of its own measured
   night NEE with the window's E0 (a closed form), with its standard error; at
-  least `night_min_points` records (5, our choice). It starts the fit, and it
-  replaces the fitted Rref where the daytime fit cannot be trusted (below).
+  least `night_min_points` records (5, our choice) and a standard error of at most
+  100 µmol m-2 s-1 (the plausible range of a flux; since round trial14: on the
+  fourteenth trial's tundra on soil temperature, night NEE at −26 °C divided by a factor
+  of ~1e-3 gave night
+  Rref of 250–420 ± 120–210 in February, whose refits carried 50 g C m-2 of daytime
+  Reco into the two months of polar night, where the truth is ~0). It starts the fit,
+  and it replaces the fitted Rref where the daytime fit cannot be trusted (below).
 - **Weighting.** With `random_error` (σ of each record's NEE) the fit
   minimises ``sum((model - NEE)^2 / σ^2)``: Lasslop et al. (2010) weight the
   cost by the flux uncertainty (m). Without it all records weigh the same.
@@ -89,7 +94,9 @@ Rules and their sources (``(m)`` = recalled from memory, check against the paper
     +11 to +13 % with the planted E0). The rule compares with the night Rref, not
     with the fit's own value, so it does not keep the windows whose noise shrank
     their error. On the calibration benchmark it took the mean daytime Reco error
-    from +2.4 % to 0.0 %. The
+    from +2.4 % to 0.0 %. A fitted Rref whose standard error exceeds 100 µmol m-2 s-1
+    (the plausible range of a measured flux, as below) is unresolved too, night Rref
+    or not (since round trial14). The
     replacement is a constrained refit: Rref fixed at the night Rref and alpha,
     beta0, k fitted on the daytime data. Physical argument: the light response
     extrapolated to Rg = 0 is respiration, and night records are direct
@@ -1058,7 +1065,10 @@ def _night_rref(windows, min_points):
         residual = np.where(f > 0, y - rref[:, None] * f, 0.0)
         variance = (w2 * residual**2).sum(axis=1) / (points - 1)
         se = np.sqrt(variance / ff)
-    usable = (points >= min_points) & (ff > 0) & np.isfinite(rref) & (rref > 0) & np.isfinite(se)
+    # a night Rref whose standard error exceeds the plausible range of a flux (nights so
+    # cold that Lloyd–Taylor's factor is ~0) is no anchor (round trial14)
+    usable = ((points >= min_points) & (ff > 0) & np.isfinite(rref) & (rref > 0)
+              & np.isfinite(se) & ~(se > _MAX_CURVE_RESPIRATION))
     return np.where(usable, rref, np.nan), np.where(usable, se, np.nan)
 
 
@@ -1407,6 +1417,9 @@ def _judge(theta, errors, fixed, fitted, converged, lower, upper, rref_night, rr
         # keep the windows whose noise happened to shrink their standard error)
         unresolved = (np.isfinite(rref_night) & (rref_night > 0)
                       & ~(errors[:, _RREF] <= rref_max_relative_error * rref_night))
+        # nor is an Rref whose standard error exceeds the plausible range of a flux (a
+        # window of deep cold without a night Rref to judge it by; round trial14)
+        unresolved |= errors[:, _RREF] > _MAX_CURVE_RESPIRATION
     rejections = [(~fitted, "too few daytime records"), (~converged, "no convergence")]
     replacements = [
         (rref <= _RREF_AT_ZERO, "rref at zero"),

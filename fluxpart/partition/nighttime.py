@@ -76,6 +76,10 @@ the window over which Reichstein et al. (2005) take the temperature response as 
 over longer spans the seasonal course of respiration makes a straight line between the
 neighbouring windows a poor guess (on generated 69–72° N site-years, interpolation across
 the weeks of midnight sun left annual Reco up to 34 % low)."""
+#: Largest standard error of a window's Rref [µmol m-2 s-1] that still resolves it: the
+#: plausible maximum of NEE itself (``VARIABLES["nee"].maximum``), above which the
+#: window's night records do not tell Rref from any respiration a record can hold.
+RREF_SE_LIMIT = VARIABLES["nee"].maximum
 # Levenberg–Marquardt controls of the batched E0 fit (our choices): relative
 # parameter change and relative SSR change below which a window has converged.
 _LM_MAX_ITERATIONS = 200
@@ -1154,9 +1158,11 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
     (Lloyd & Taylor 1994, eq. 11) the model is linear in Rref, and its least
     squares estimate is ``Rref = Σ f·NEE / Σ f²``, with standard error
     ``sqrt(s² / Σ f²)``, ``s² = SSR / (n - 1)``. Windows with fewer than
-    `rref_min_points` records or a negative Rref are dropped, and Rref is
-    interpolated across them. Six records are at least two nights' worth of
-    measured night NEE at most sites; with the random error of one record
+    `rref_min_points` records, a negative Rref or a standard error above
+    :data:`RREF_SE_LIMIT` (since round trial14: nights so cold that ``f`` is ~0, e.g.
+    1e-7 at −28 °C with E0 = 419 K, gave Rref of ±1e5 whose interpolation carried them
+    to warmer records) are dropped, and Rref is interpolated across them. Six records
+    are at least two nights' worth of measured night NEE at most sites; with the random error of one record
     about as large as night respiration itself, Rref from two to five records
     is mostly noise, and such windows sit where night data thin out (edges of
     long gaps, the short nights of a high-latitude summer), where they anchor
@@ -1174,7 +1180,13 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
     Both coefficients by least squares (a 2 x 2 system per window); the window is
     kept with at least `rref_min_points` records, a positive determinant, Rref
     >= 0 and ``a >= 0`` (more light, more uptake), with ``se(Rref) =
-    sqrt(s² Σx² / det)``, ``s² = SSR / (n - 2)``. A light response that already
+    sqrt(s² Σx² / det)``, ``s² = SSR / (n - 2)``. Where the canopy does not
+    photosynthesise (midnight sun over snow or a thawing tundra before green-up) the
+    true ``a`` is 0 and only the windows the noise tilted towards uptake are kept, whose
+    intercepts read Rref high (the fourteenth trial's tundra: June Reco 16.9 g C m-2 for
+    2.5); fitting such windows with ``a = 0`` was tried in round trial14 and not kept, as
+    it read the generated polar fens' Reco low where their light response is real but
+    unresolved (see the changelog). A light response that already
     bends below `low_light_rg` makes the line's intercept low by a part of the
     bend (a concave curve lies above its chord), so Reco there is a lower estimate.
 
@@ -1220,7 +1232,12 @@ def fit_rref_windows(index, nee, temperature, is_night, e0, *, rref_window_days=
                             / np.maximum(counts - 1, 1), np.nan)
         rref_se = np.sqrt(variance / sum_ff)
         mean_e0 = np.sum(e0_pad, axis=1) / counts
-    keep = (counts >= min_points) & np.isfinite(rref) & (rref >= 0)
+    # a window whose Rref is not resolved within the flux range a record can hold (nights
+    # so cold that the Lloyd–Taylor term is ~0: noise divided by it) says nothing about
+    # Rref; interpolated through, its value times a warmer record's term is a respiration
+    # no ecosystem has
+    resolved = ~(rref_se > RREF_SE_LIMIT)
+    keep = (counts >= min_points) & np.isfinite(rref) & (rref >= 0) & resolved
     source = np.full(n_windows, "night", dtype=object)
     long_runs = _long_runs(~keep, window_seconds, (ends - starts) if len(edges) else None)
     if rg is not None and low_light_rg > 0 and long_runs.any():
