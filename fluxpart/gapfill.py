@@ -160,6 +160,7 @@ __all__ = [
     "fill_drivers",
     "fill_frame",
     "fill_marginal",
+    "fill_marginal_values",
     "local_linear_correction",
     "pass_sequence",
     "quality_class",
