@@ -611,11 +611,13 @@ def _stretch_scores(d_nee, d_rg, firsts: np.ndarray, minimum: int):
     def suffix_moments(k):
         if k not in cache:
             a, b = _shift_pairs(d_nee, d_rg, k)
-            ok = np.isfinite(a) & np.isfinite(b)
-            a, b = np.where(ok, a, 0.0), np.where(ok, b, 0.0)
-            month = np.searchsorted(firsts, np.arange(a.size), side="right")
+            # the finite pairs only (night changes are NaN): the others would add +0.0 to
+            # each sum, which changes no bit of a sum that starts at +0.0
+            ok = np.flatnonzero(np.isfinite(a) & np.isfinite(b))
+            a, b = a[ok], b[ok]
+            month = np.searchsorted(firsts, ok, side="right")
             sums = np.stack([np.bincount(month, weights=w, minlength=firsts.size + 1)
-                             for w in (ok.astype(float), a, b, a * a, b * b, a * b)])
+                             for w in (np.ones(ok.size), a, b, a * a, b * b, a * b)])
             # the sums over the pairs from each month's first record on
             cache[k] = np.cumsum(sums[:, ::-1], axis=1)[:, ::-1]
         return cache[k]
@@ -688,7 +690,10 @@ def nee_shift_from_month(nee, rg, potential, stamps, interval_minutes: float,
     if (nee.size < 3 or not nee.size == rg.size == potential.size == len(stamps)
             or interval_minutes <= 0):
         return None
-    months = np.asarray(pd.DatetimeIndex(stamps).to_period("M").astype(str))
+    stamps = pd.DatetimeIndex(stamps)
+    # the calendar month of each stamp as one number (the same changes as its "YYYY-MM"
+    # label, a tenth of the cost)
+    months = stamps.year.to_numpy() * 12 + stamps.month.to_numpy()
     firsts = np.flatnonzero(months[1:] != months[:-1]) + 1
     chosen = None
     stretch = _stretch_scores(*_sunlit_changes(nee, rg, potential), firsts, _STRETCH_PAIRS)
@@ -717,11 +722,11 @@ def nee_shift_from_month(nee, rg, potential, stamps, interval_minutes: float,
         later = "later" if best > 0 else "earlier"
         return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
                 f"{names.get('rg', 'rg')!r}) {abs(best)} record(s) ({minutes:g} min) {later} "
-                f"than the same record from {months[first]} on (correlation of the sunlit "
+                f"than the same record from {stamps[first]:%Y-%m} on (correlation of the sunlit "
                 f"changes {strength:.2f} there, {same:.2f} in the same record, {apart:.0f} "
                 "standard errors apart, and clearly above the same shift a day on either "
                 "side), not before: photosynthesis follows light within minutes, so the NEE "
-                f"column looks shifted from {months[first]} on (a flux computer replaced or "
+                f"column looks shifted from {stamps[first]:%Y-%m} on (a flux computer replaced or "
                 "reset to another clock, or to stamps at the other end of the interval); "
                 "align those records in a copy of the file")
     return None

@@ -160,6 +160,7 @@ __all__ = [
     "fill_drivers",
     "fill_frame",
     "fill_marginal",
+    "fill_marginal_values",
     "local_linear_correction",
     "pass_sequence",
     "quality_class",
@@ -491,18 +492,41 @@ class _RankTables:
     upper, "right")``. Segment k covers usable positions [kS, kS + 2S) with
     S = 32767, so every window of at most S positions lies in one segment and
     its ranks fit in uint16. Tables are built when first needed and reused by
-    every pass of the step.
+    every pass of the step. Where every window of the step lies within ``span``
+    (start, stop) of usable positions, at most 2S long, one table ranks that span
+    instead: any set containing the window gives the same decisions. ``usable``:
+    the record numbers of the usable records (:meth:`taken`).
     """
 
     _SEGMENT = 32767
 
-    def __init__(self, usable_drivers):
+    def __init__(self, usable, usable_drivers, span=None):
+        self.usable = usable
         self._drivers = usable_drivers
         self._tables = {}
+        self._span = span
+        self._taken = {}
+
+    def taken(self, array):
+        """``array[usable]`` of a record array of the step (the target, a driver), taken
+        once per step instead of once per pass (the same values)."""
+        key = id(array)
+        if key not in self._taken:     # the array is kept, so its id stays its own
+            self._taken[key] = (array, array[self.usable])
+        return self._taken[key][1]
 
     def keys(self, p, q, lower, upper):
         """(rank key, low, high) per driver for the window of usable positions [p, q)."""
-        if q - p > self._SEGMENT:  # a window wider than a segment: rank it on its own
+        span = self._span
+        if span is not None and span[0] <= p and q <= span[1]:
+            # every window of the step lies in one span of usable positions: one table
+            # ranks just that span (a few long gaps need a few thousand records ranked,
+            # not segments of 65,534)
+            if "span" not in self._tables:
+                self._tables["span"] = [_ranked(driver[span[0]:span[1]])
+                                        for driver in self._drivers]
+            tables, offset = self._tables["span"], span[0]
+        elif q - p > self._SEGMENT:  # a window wider than a segment: rank it on its own
             tables, offset = [_ranked(driver[p:q]) for driver in self._drivers], p
         else:
             k = p // self._SEGMENT
@@ -559,9 +583,9 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
     # Window of each gap as a range of positions in ``usable``.
     time_low = np.searchsorted(usable, gaps - half_width, side="left")
     time_high = np.searchsorted(usable, gaps + half_width, side="right")
-    usable_values = values[usable]
+    usable_values = tables.taken(values)
     slope_drivers = [*conditions, *regressors] if local_linear else []
-    usable_drivers = [driver[usable] for driver, _ in slope_drivers]
+    usable_drivers = [tables.taken(driver) for driver, _ in slope_drivers]
     lowers = [driver[gaps] - _at(tolerance, gaps) for driver, tolerance in conditions]
     uppers = [driver[gaps] + _at(tolerance, gaps) for driver, tolerance in conditions]
     # bounds of the local-linear slope records
@@ -995,7 +1019,7 @@ def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all
     n = values.size
     remaining = remaining.copy()
 
-    def _usable_and_available(conditions):
+    def _usable_and_available(step, conditions):
         usable = donors.copy()
         available = np.ones(n, dtype=bool)
         for driver, _ in conditions:
@@ -1003,14 +1027,18 @@ def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all
             usable &= finite
             available &= finite
         usable = np.flatnonzero(usable)
-        return usable, available, _RankTables([driver[usable] for driver, _ in conditions])
+        return usable, available, _RankTables(
+            usable, [driver[usable] for driver, _ in conditions],
+            _step_span(usable, np.flatnonzero(remaining & available),
+                       [k * per_day for s, k in passes if s == step]))
 
     step_inputs = {}
     if all_conditions is not None:
-        step_inputs[METHOD_ALL_DRIVERS] = (all_conditions, *_usable_and_available(all_conditions))
+        step_inputs[METHOD_ALL_DRIVERS] = (all_conditions, *_usable_and_available(
+            METHOD_ALL_DRIVERS, all_conditions))
     if radiation_conditions is not None:
-        step_inputs[METHOD_RADIATION] = (radiation_conditions,
-                                         *_usable_and_available(radiation_conditions))
+        step_inputs[METHOD_RADIATION] = (radiation_conditions, *_usable_and_available(
+            METHOD_RADIATION, radiation_conditions))
     outputs = []
     for step, half_width_days in passes:
         if step == METHOD_DIURNAL_COURSE:
@@ -1036,6 +1064,19 @@ def _fill_class(values, donors, remaining, passes, per_day, diurnal_records, all
     if last_resort and night_class and remaining.any():
         outputs += _nearby_nights(values, donors, remaining, per_day, min_donors)
     return outputs
+
+
+def _step_span(usable, gaps, half_widths):
+    """The usable positions (start, stop) every window of a step's passes can reach: those
+    of `gaps` (the step's first gaps; later passes fill a subset) at the widest of
+    `half_widths` [records]; None where the span is longer than two rank segments (or the
+    step has no pass or no gap): the segments of :class:`_RankTables` then serve."""
+    if gaps.size == 0 or not half_widths:
+        return None
+    reach = max(half_widths)
+    start = int(np.searchsorted(usable, gaps[0] - reach, side="left"))
+    stop = int(np.searchsorted(usable, gaps[-1] + reach, side="right"))
+    return (start, stop) if stop - start <= 2 * _RankTables._SEGMENT else None
 
 
 def _take(outputs, remaining, gaps, step, half_width_days, result, min_donors) -> None:
@@ -1328,6 +1369,56 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
     Richardson, A. D., et al. (2006). Agricultural and Forest Meteorology 136, 1–18.
     doi:10.1016/j.agrformet.2006.01.007
     """
+    columns, crossed = _marginal_columns(
+        target, drivers, index, is_night=is_night, donors=donors, rg_tolerance=rg_tolerance,
+        tair_tolerance=tair_tolerance, vpd_tolerance=vpd_tolerance,
+        max_window_days=max_window_days, min_donors=min_donors, gaps=gaps, rg_window=rg_window,
+        night_rg_threshold=night_rg_threshold, clearness=clearness,
+        clearness_tolerance=clearness_tolerance, estimate=estimate, breaks=breaks)
+    out = _output_frame(index, *columns)
+    if crossed:
+        out.attrs["events_crossed"] = crossed
+    return out
+
+
+def fill_marginal_values(target, drivers, index, **settings) -> np.ndarray:
+    """The ``value`` column of :func:`fill_marginal` as an array, without the other columns.
+
+    Parameters
+    ----------
+    target, drivers, index
+        As :func:`fill_marginal`.
+    **settings
+        The keyword settings of :func:`fill_marginal`.
+
+    Returns
+    -------
+    numpy.ndarray
+        ``fill_marginal(target, drivers, index, **settings)["value"]``, bit for bit
+        [the target's unit, e.g. µmol m-2 s-1]: for callers that use the filled values
+        only (fills scored on artificial gaps, a long gap filled from one side), which
+        so skip the quality classes and the frame of every record.
+
+    Raises
+    ------
+    As :func:`fill_marginal`.
+
+    References
+    ----------
+    As :func:`fill_marginal` (Reichstein et al. 2005, appendix A).
+    """
+    return _marginal_columns(target, drivers, index, **settings)[0][0]
+
+
+def _marginal_columns(target, drivers, index, *, is_night=None, donors="separate_day_night",
+                      rg_tolerance=_RG_TOLERANCE, tair_tolerance=_TAIR_TOLERANCE,
+                      vpd_tolerance=_VPD_TOLERANCE, max_window_days=_MAX_WINDOW_DAYS,
+                      min_donors=_MIN_DONORS, gaps=None, rg_window="centred",
+                      night_rg_threshold=_NIGHT_RG_THRESHOLD, clearness=None,
+                      clearness_tolerance=_CLEARNESS_TOLERANCE,
+                      estimate="local_linear", breaks=None) -> tuple:
+    """The output columns of :func:`fill_marginal` (value, method, window_days, count,
+    std as arrays) and its list of joined pieces (``attrs["events_crossed"]``)."""
     per_day, diurnal_records = _records_per_day(index)
     values = _as_values(target, "target", index)
     _driver_columns(drivers, _DRIVERS, "drivers")
@@ -1379,11 +1470,7 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
             local_linear=estimate == "local_linear", radiation_regressors=cut(regressors),
             night_regressors=cut(night_regressors))
 
-    columns, crossed = _fill_pieces(fill, values, wanted, breaks)
-    out = _output_frame(index, *columns)
-    if crossed:
-        out.attrs["events_crossed"] = crossed
-    return out
+    return _fill_pieces(fill, values, wanted, breaks)
 
 
 def _fill_pieces(fill, values, wanted, breaks) -> tuple:

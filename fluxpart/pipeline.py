@@ -470,9 +470,11 @@ def _per_record(index, per_year: pd.Series) -> np.ndarray:
     return per_year.reindex(index.year).to_numpy(dtype=float)
 
 
-def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None):
-    """MDS gap filling of NEE with the configured settings (also scored on artificial gaps)."""
-    return gapfill.fill_marginal(
+def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, values_only=False):
+    """MDS gap filling of NEE with the configured settings (also scored on artificial gaps);
+    `values_only`: the filled values as an array (:func:`gapfill.fill_marginal_values`)."""
+    fill = gapfill.fill_marginal_values if values_only else gapfill.fill_marginal
+    return fill(
         nee_measured, conditions, index, is_night=is_night, donors=config.gapfill_donors,
         rg_tolerance=config.rg_tolerance, tair_tolerance=config.tair_tolerance,
         vpd_tolerance=config.vpd_tolerance, max_window_days=config.gapfill_max_window_days,
@@ -1037,7 +1039,8 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
     gap_errors = uncertainty.artificial_gap_errors(
         nee_measured, noise, is_night,
         lambda values, hidden: _fill_nee(values, conditions.mask(hidden), index, is_night,
-                                         config, gaps=measured & np.isnan(values))["value"],
+                                         config, gaps=measured & np.isnan(values),
+                                         values_only=True),
         seed=uncertainty.artificial_gap_seed(nee_measured), records_per_day=24 * 60 // interval,
         conditions_missing=conditions.isna().to_numpy())
     gapfill_model = uncertainty.gapfill_error_model(gap_errors)
@@ -1046,7 +1049,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         nee_measured, *gap_sides.long_gaps(~measured, 24 * 60 // interval,
                                            breaks=gapfill.event_breaks(index, config.events)),
         lambda values, gaps: _fill_nee(values, conditions, index, is_night, config,
-                                       gaps=gaps)["value"])
+                                       gaps=gaps, values_only=True))
     runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
                                 "reco_nighttime": n.reco, "gpp_daytime": d.gpp,
                                 "reco_daytime": d.reco}, index=index)

@@ -129,6 +129,9 @@ _MIN_FILL_COUNT = 5
 #: held in memory at once (2**21 doubles = 16 MiB per temporary).
 _DRAWS = 500
 _BLOCK_ELEMENTS = 1 << 21
+# Float64 errors scaled at a time in monte_carlo_sums (~256 KiB: within a core's L2 cache);
+# changes no number (each draw's sums are its own row's)
+_SCALED_ELEMENTS = 1 << 15
 #: Tonnes per hectare in one gram per square metre: 1 ha = 1e4 m2, 1 t = 1e6 g (SI).
 _T_HA_PER_G_M2 = 1e4 / 1e6
 _MINUTES_PER_DAY = 1440
@@ -605,12 +608,14 @@ def draw_random_errors(sigma, draws, rng) -> np.ndarray:
 
 class _ErrorBuffers:
     """Work arrays of :func:`_laplace_errors` for up to `size` draws x records, so that the
-    blocks of :func:`monte_carlo_sums` reuse them instead of allocating ~34 MB each."""
+    blocks of :func:`monte_carlo_sums` reuse them instead of allocating ~34 MB each.
+    ``errors_size``: the float64 errors' own size, where a caller scales the draws a few
+    rows at a time (:func:`monte_carlo_sums`); default `size`."""
 
-    def __init__(self, size: int):
+    def __init__(self, size: int, errors_size: int | None = None):
         self.unit = np.empty(size, dtype=np.float32)
         self.other = np.empty(size, dtype=np.float32)
-        self.errors = np.empty(size)
+        self.errors = np.empty(size if errors_size is None else errors_size)
 
     def take(self, shape):
         """Views of the first ``prod(shape)`` elements of each array, in `shape`."""
@@ -619,15 +624,25 @@ class _ErrorBuffers:
                 self.errors[:count].reshape(shape))
 
 
-def _laplace_errors(sigma, draws, rng, buffers) -> np.ndarray:
-    """:func:`draw_random_errors` written into `buffers` (an :class:`_ErrorBuffers`)."""
-    unit, other, errors = buffers.take((draws, sigma.size))
+def _laplace_units(shape, rng, buffers) -> np.ndarray:
+    """Laplace(0, 1) draws of `shape` (draws x records), float32, times √2 (the
+    difference of two unit exponentials, variance 2), in `buffers`' ``unit`` array."""
+    count = shape[0] * shape[1]
+    unit = buffers.unit[:count].reshape(shape)
+    other = buffers.other[:count].reshape(shape)
     # Laplace(0, 1) as the difference of two unit exponentials (ziggurat draws in float32:
     # about half the CPU of numpy's inverse-CDF Laplace; float32 resolves a record's error
     # to 1e-7 of itself, far below the ~3 % Monte Carlo precision of a sum)
     rng.standard_exponential(dtype=np.float32, out=unit)
     rng.standard_exponential(dtype=np.float32, out=other)
     unit -= other
+    return unit
+
+
+def _laplace_errors(sigma, draws, rng, buffers) -> np.ndarray:
+    """:func:`draw_random_errors` written into `buffers` (an :class:`_ErrorBuffers`)."""
+    unit = _laplace_units((draws, sigma.size), rng, buffers)
+    errors = buffers.errors[:unit.size].reshape(unit.shape)
     return np.multiply(unit, sigma / np.sqrt(2.0), out=errors)
 
 
@@ -696,15 +711,26 @@ def monte_carlo_sums(sigma, index, interval_minutes, *, draws=_DRAWS, seed=0,
     rng = np.random.default_rng(seed)
     sums = np.zeros((int(draws), years.size))
     block = max(1, _BLOCK_ELEMENTS // int(draws))
-    buffers = _ErrorBuffers(int(draws) * min(block, sigma.size))
+    width = min(block, sigma.size)
+    # the draws are scaled and summed a few rows at a time, in a float64 array of ~256 KiB
+    # (cache-resident, not 16 MiB): each row's sums are the same whatever rows are beside
+    # it (elementwise products, then a reduction along each row)
+    rows = max(2, _SCALED_ELEMENTS // width)
+    buffers = _ErrorBuffers(int(draws) * width, min(rows, int(draws)) * width)
     for start in range(0, sigma.size, block):
         stop = min(start + block, sigma.size)
-        errors = _laplace_errors(sigma[start:stop], int(draws), rng, buffers)
+        unit = _laplace_units((int(draws), stop - start), rng, buffers)
+        scale = sigma[start:stop] / np.sqrt(2.0)
         part = codes[start:stop]
         # Sum each run of records of one year at once (records in time order: one or two runs).
         edges = np.flatnonzero(np.diff(part)) + 1
-        for first, last in zip(np.r_[0, edges], np.r_[edges, part.size], strict=True):
-            sums[:, part[first]] += errors[:, first:last].sum(axis=1)
+        runs = list(zip(np.r_[0, edges], np.r_[edges, part.size], strict=True))
+        for row in range(0, int(draws), rows):
+            chunk = unit[row:row + rows]
+            errors = np.multiply(chunk, scale,
+                                 out=buffers.errors[:chunk.size].reshape(chunk.shape))
+            for first, last in runs:
+                sums[row:row + rows, part[first]] += errors[:, first:last].sum(axis=1)
     sums *= factor
     variance = np.bincount(codes, weights=np.square(sigma), minlength=years.size)
     low, high = np.percentile(sums, [2.5, 97.5], axis=0)

@@ -1223,3 +1223,28 @@ def test_a_filler_is_a_preflight_warning():
     screened = pd.DataFrame({"tair": tair}, index=frame.index)
     findings = [f for f in _column_faults(screened, None, STEP) if f.stage == "input (tair filler)"]
     assert len(findings) == 1 and not findings[0].fatal and "10 occurs" in findings[0].message
+
+
+def test_stretch_scores_are_the_correlations_of_the_finite_pairs():
+    """`_stretch_scores` (round speed19: sums over the finite pairs only) against NumPy's
+    ``np.corrcoef`` (a general-purpose library) of the finite pairs from each month's
+    first record on, shift by shift, on invented changes with NaN nights; the pair count
+    is theirs exactly."""
+    from fluxpart.column_faults import _shift_pairs, _stretch_scores
+
+    rng = np.random.default_rng(19)
+    n = 3000
+    d_rg = rng.normal(0.0, 50.0, n)
+    d_nee = -0.02 * np.roll(d_rg, 2) + rng.normal(0.0, 1.0, n)
+    d_rg[rng.random(n) < 0.4] = np.nan
+    d_nee[rng.random(n) < 0.2] = np.nan
+    firsts = np.array([400, 1100, 2000, 2600])
+    score = _stretch_scores(d_nee, d_rg, firsts, 10)
+    for k in (-3, 0, 2, 5):
+        a, b = _shift_pairs(d_nee, d_rg, k)
+        for m, first in enumerate(firsts):
+            ok = np.isfinite(a[first:]) & np.isfinite(b[first:])
+            r, count = score(k, m)
+            assert count == ok.sum()
+            expected = np.corrcoef(a[first:][ok], b[first:][ok])[0, 1]
+            assert -r == pytest.approx(expected, rel=1e-9)
