@@ -650,6 +650,68 @@ def _mixed_forms(hint: str, text: pd.Series, failed: np.ndarray, skipped: np.nda
     return hint
 
 
+#: what a spreadsheet writes beside a date or a time that it saves as a date and time:
+#: the midnight of a date cell (24-hour and 12-hour forms), and the day zero of a time
+#: cell, 1899-12-30 in the orders a sheet's locale writes it
+_CELL_MIDNIGHTS = ("00:00:00", "00:00", "0:00:00", "0:00", "12:00:00 AM", "12:00 AM")
+_CELL_DAY_ZEROS = ("1899-12-30", "1899/12/30", "30.12.1899", "30/12/1899", "12/30/1899")
+
+
+def _spreadsheet_cell_time(failed: pd.Series, time_columns, time_format: str) -> str:
+    """Name a date column whose cells carry a midnight time, or a time column whose cells
+    carry the spreadsheet's day zero, with the time_format that reads past it; else "".
+
+    A sheet that holds the date and the time in two columns saves a date cell formatted
+    with a time as "2021-06-01 00:00:00" and a time cell formatted with a date as
+    "1899-12-30 13:30:00", so the joined stamp ("2021-06-01 00:00:00 13:30:00") holds
+    two times (or two dates) and matches no format of one date and one time. The test:
+    several time columns, a format of a date, a space and a time (:func:`_date_part`),
+    and every failed stamp read by that format with one of :data:`_CELL_MIDNIGHTS` or
+    :data:`_CELL_DAY_ZEROS` written between its date and its time as literal text, which
+    strptime matches as it is.
+
+    Parameters
+    ----------
+    failed : pandas.Series of str
+        The joined stamps that fail to parse.
+    time_columns : str or tuple of str
+        The [input] time_column setting.
+    time_format : str
+        The [input] time_format setting.
+
+    Returns
+    -------
+    str
+        The hint naming the column, the text it carries and the time_format to write.
+
+    References
+    ----------
+    Excel and LibreOffice keep a date as a day number whose time of day is its fraction,
+    so a date cell holds midnight and a time cell holds day 0, which is 1899-12-30
+    (Microsoft documentation of the 1900 date system (m)).
+    """
+    if isinstance(time_columns, str) or len(time_columns) < 2 or not len(failed):
+        return ""
+    date = _date_part(time_format)
+    if date is None or not time_format[len(date):].startswith(" "):
+        return ""
+    rest = time_format[len(date):]
+    texts = failed.str.strip()
+    for literal in _CELL_MIDNIGHTS + _CELL_DAY_ZEROS:
+        candidate = f"{date} {literal}{rest}"
+        if pd.to_datetime(texts, format=candidate, errors="coerce").notna().all():
+            if literal in _CELL_MIDNIGHTS:
+                what = (f"the date column {time_columns[0]!r} holds the time {literal!r} "
+                        "after each date (a spreadsheet's date cells saved as date and time)")
+            else:
+                what = (f"the time column {time_columns[-1]!r} holds the date {literal!r} "
+                        "before each time (a spreadsheet's time cells saved as date and "
+                        "time: its day zero)")
+            return (f"{what}: write time_format = {setting_text(candidate)}, which reads "
+                    "past it as literal text")
+    return ""
+
+
 def _other_format(stamp: str, time_format: str) -> str:
     """A hint where a stamp fails only for a 12-hour clock, a two-digit year or seconds
     written in one of stamp and format but not the other, else ''."""
@@ -766,6 +828,16 @@ def _fraction_hint(failed: pd.Series, time_format: str) -> str:
         return ("the time fields are whole numbers written with a decimal fraction ("
                 f"{failed.iloc[0].strip()!r}, as a table of floating-point numbers is saved): "
                 "write them as integers in a copy of the file")
+    last = pd.to_numeric(failed.str.strip().str.rsplit(n=1).str[-1], errors="coerce")
+    if len(failed) > 1 and last.notna().all() and (last >= 0).all() and (last < 1).all() \
+            and failed.str.strip().str.contains(r"\s").all():
+        # a sheet keeps a time of day as the fraction of a day (13:30 is 0.5625) and
+        # saves a time cell formatted as a number so (Microsoft documentation of the
+        # 1900 date system (m))
+        return (f"the time field ({failed.iloc[0].strip().rsplit(None, 1)[-1]!r}) is a "
+                "fraction of a day (0.5625 is 13:30), as a spreadsheet saves a time cell "
+                "formatted as a number: format the time column as hh:mm in a copy of the file "
+                "before saving it as CSV, and set time_format to match")
     return ("the stamps hold decimal fractions (a decimal day of year or hour?), which no "
             "time_format reads: write the column as dates and times in a copy of the file "
             "(e.g. 2021-06-01 13:30) and set time_format to match")
@@ -983,6 +1055,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = "; " + _finer_stamp(text.iloc[first], time_format)
         elif _fraction_hint(text[failed], time_format):
             hint = "; " + _fraction_hint(text[failed], time_format)
+        elif _spreadsheet_cell_time(text[failed], time_columns, time_format):
+            hint = "; " + _spreadsheet_cell_time(text[failed], time_columns, time_format)
         elif _other_format(text.iloc[first], time_format):
             hint = "; " + _other_format(text.iloc[first], time_format)
         elif "%" not in time_format and time_format.upper() != "ISO8601":

@@ -1,0 +1,184 @@
+"""Layouts of the layouts26 round: a logger's table of another averaging period caught by
+the path pattern, a spreadsheet's date and time cells saved with their hidden part, and a
+spreadsheet's note of the delimiter on the first line.
+
+Outside facts, each named beside its check: a spreadsheet keeps a date as a day number
+whose time of day is its fraction, so a date cell holds midnight, a time cell holds day 0
+(1899-12-30) and a time cell saved as a number is the fraction of a day, 13:30 = 0.5625
+(Microsoft documentation of the 1900 date system (m)); Excel reads a first line "sep=X"
+as the file's delimiter (Microsoft documentation of opening CSV files (m)); a record's
+value is the mean over its own averaging period, so the hourly mean of two half-hours
+is their average (common practice). Everything else is invented known truth: the records
+as written.
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.errors import DuplicateTimestampError, InputFileError, TimestampError
+from fluxpart.io import read_table
+from fluxpart.site import Site
+
+SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
+MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+NAMES = ["fc", "us", "sw", "ta", "vpd"]
+
+
+def _records(count=96 * 4):
+    """Invented half-hourly records ending at 00:30 on 1 June: stamps and the five
+    values of each (a diurnal Rg, so no two half-hours are alike)."""
+    ends = pd.date_range("2021-06-01 00:30", periods=count, freq="30min")
+    hour = ends.hour + ends.minute / 60
+    rg = np.clip(800 * np.sin((hour - 6) / 12 * np.pi), 0, None).round(1)
+    noise = np.random.default_rng(26).normal(0.0, 0.4, count)
+    fc = (2.0 - rg / 100 + noise).round(3)
+    ta = (15 + 5 * np.sin((hour - 9) / 12 * np.pi)).round(2)
+    vpd = (5 + ta / 3).round(2)
+    us = (0.2 + 0.1 * np.cos(np.arange(count) / 7)).round(3)
+    return ends, np.column_stack([fc, us, rg, ta, vpd])
+
+
+def _write(path, stamps, values, sep=",", head="stamp", first_line=None):
+    lines = [] if first_line is None else [first_line]
+    lines.append(sep.join([head] + NAMES))
+    lines += [sep.join([stamp] + [f"{v:g}" for v in row]) for stamp, row in
+              zip(stamps, values, strict=True)]
+    path.write_text("\n".join(lines) + "\n")
+
+
+def _read(path, **options):
+    settings = {"columns": MAPPING, "time_column": "stamp", "time_format": "%Y-%m-%d %H:%M",
+                "time_marks": "end", "units": {"vpd": "hPa"}, "site": SITE} | options
+    return read_table(path, **settings)
+
+
+@pytest.mark.parametrize(("step", "name"), [(2, "Mast_Flux60.dat"), (48, "Mast_Daily.dat")])
+def test_table_of_another_period_caught_by_the_pattern_is_named(tmp_path, step, name):
+    """A logger's hourly (or daily) table beside its half-hourly one, both caught by
+    "Mast_*.dat": every hourly stamp is a half-hourly stamp too, with the mean of two
+    half-hours (common practice), not the half-hour's value. Refused as before, but the
+    line now names both files' steps and the fix (a narrower pattern); before, it said
+    "remove one copy of the overlap", which names no copy."""
+    ends, values = _records()
+    _write(tmp_path / "Mast_Flux30.dat", [f"{e:%Y-%m-%d %H:%M}" for e in ends], values)
+    means = values.reshape(-1, step, values.shape[1]).mean(axis=1)
+    _write(tmp_path / name, [f"{e:%Y-%m-%d %H:%M}" for e in ends[step - 1::step]], means)
+    with pytest.raises(DuplicateTimestampError) as caught:
+        _read([tmp_path / "Mast_Flux30.dat", tmp_path / name])
+    message = str(caught.value)
+    assert f"every {30 * step:g} minutes" in message and "every 30 minutes" in message
+    assert "narrower pattern" in message
+    assert "remove one copy of the overlap" not in message
+
+
+def test_overlap_of_one_step_still_asks_to_remove_a_copy(tmp_path):
+    """Two half-hourly downloads whose overlap disagrees in one value (a record edited
+    in one copy): same step, so the line stays as it was (kept behaviour)."""
+    ends, values = _records()
+    stamps = [f"{e:%Y-%m-%d %H:%M}" for e in ends]
+    _write(tmp_path / "a.csv", stamps[:200], values[:200])
+    edited = values[150:].copy()
+    edited[10, 0] += 1.0
+    _write(tmp_path / "b.csv", stamps[150:], edited)
+    with pytest.raises(DuplicateTimestampError) as caught:
+        _read([tmp_path / "a.csv", tmp_path / "b.csv"])
+    assert "remove one copy of the overlap" in str(caught.value)
+    assert "averaging periods" not in str(caught.value)
+
+
+def _two_columns(path, dates, times, values, sep=","):
+    lines = [sep.join(["Date", "Time"] + NAMES)]
+    lines += [sep.join([d, t] + [f"{v:g}" for v in row])
+              for d, t, row in zip(dates, times, values, strict=True)]
+    path.write_text("\n".join(lines) + "\n")
+
+
+@pytest.mark.parametrize(("date_cell", "time_cell", "time_format", "expected"), [
+    # a date cell formatted with a time: midnight after each date (Microsoft 1900 date
+    # system: the time of day is the fraction, 0 for a date (m))
+    ("%Y-%m-%d 00:00:00", "%H:%M:%S", "%Y-%m-%d %H:%M:%S", "%Y-%m-%d 00:00:00 %H:%M:%S"),
+    # a time cell formatted with a date: day 0 is 1899-12-30 (same source (m))
+    ("%d.%m.%Y", "30.12.1899 %H:%M", "%d.%m.%Y %H:%M", "%d.%m.%Y 30.12.1899 %H:%M"),
+])
+def test_spreadsheet_cells_with_their_hidden_part_name_the_format(tmp_path, date_cell,
+                                                                 time_cell, time_format,
+                                                                 expected):
+    """The joined stamp holds two times (or two dates); refused as before, now naming
+    the column, the text it carries and a time_format that reads past it, which reads
+    every record at its stamp (known truth: the records as written). Before, the line
+    gave no cause."""
+    ends, values = _records()
+    path = tmp_path / "sheet.csv"
+    _two_columns(path, [f"{e:{date_cell}}" for e in ends], [f"{e:{time_cell}}" for e in ends],
+                 values)
+    with pytest.raises(TimestampError) as caught:
+        _read(path, time_column=["Date", "Time"], time_format=time_format)
+    assert f'time_format = "{expected}"' in str(caught.value)
+    frame, _ = _read(path, time_column=["Date", "Time"], time_format=expected)
+    assert frame.index[0] == ends[0] - pd.Timedelta(minutes=30)     # interval starts
+    assert len(frame) == len(ends)
+    assert np.allclose(frame["rg"].to_numpy(), values[:, 2])
+
+
+def test_time_as_a_fraction_of_a_day_is_named(tmp_path):
+    """A time cell saved as a number: 00:30 is 1/48 = 0.020833 of a day (Microsoft 1900
+    date system (m)). Named as such; before, the line guessed "a decimal day of year or
+    hour"."""
+    ends, values = _records()
+    path = tmp_path / "sheet.csv"
+    _two_columns(path, [f"{e:%Y-%m-%d}" for e in ends],
+                 [f"{(e.hour * 60 + e.minute) / 1440:.6f}" for e in ends], values)
+    with pytest.raises(TimestampError) as caught:
+        _read(path, time_column=["Date", "Time"])
+    assert "fraction of a day" in str(caught.value)
+    assert "0.020833" in str(caught.value)
+
+
+def test_decimal_hours_keep_their_line(tmp_path):
+    """Decimal hours (0.0 .. 23.5) are no fractions of a day: the earlier line stays
+    (kept behaviour)."""
+    ends, values = _records()
+    path = tmp_path / "hours.csv"
+    _two_columns(path, [f"{e:%Y-%m-%d}" for e in ends],
+                 [f"{e.hour + e.minute / 60:.1f}" for e in ends], values)
+    with pytest.raises(TimestampError) as caught:
+        _read(path, time_column=["Date", "Time"], time_format="%Y-%m-%d %H")
+    assert "fraction of a day" not in str(caught.value)
+    assert "decimal fractions" in str(caught.value)
+
+
+@pytest.mark.parametrize("note", ["sep=;", "SEP=;", '"sep=;";;;;;'])
+def test_spreadsheet_delimiter_note_is_read_past(tmp_path, note):
+    """A first line "sep=;" (Excel's note of the delimiter (m)) holds no name and no
+    record: read past it, every record as written (known truth). Before, refused with
+    "set [input] rows_before_header = 1"."""
+    ends, values = _records()
+    path = tmp_path / "excel.csv"
+    _write(path, [f"{e:%Y-%m-%d %H:%M}" for e in ends], values, sep=";", first_line=note)
+    frame, _ = _read(path, delimiter=";")
+    assert len(frame) == len(ends)
+    assert np.allclose(frame["nee"].to_numpy(), values[:, 0])
+    assert frame.index[0] == ends[0] - pd.Timedelta(minutes=30)
+
+
+def test_spreadsheet_delimiter_note_against_the_setting_is_refused(tmp_path):
+    """The note says ';' and [input] delimiter says ',': one of them is wrong, so the
+    line names both and both fixes."""
+    ends, values = _records()
+    path = tmp_path / "excel.csv"
+    _write(path, [f"{e:%Y-%m-%d %H:%M}" for e in ends], values, sep=";", first_line="sep=;")
+    with pytest.raises(InputFileError) as caught:
+        _read(path)
+    message = str(caught.value)
+    assert "'sep=;'" in message and 'delimiter = ","' in message
+    assert 'set delimiter = ";"' in message
+
+
+def test_spreadsheet_delimiter_note_counted_by_the_user_reads_as_before(tmp_path):
+    """rows_before_header = 1 set for the note: read as before (kept behaviour)."""
+    ends, values = _records()
+    path = tmp_path / "excel.csv"
+    _write(path, [f"{e:%Y-%m-%d %H:%M}" for e in ends], values, sep=";", first_line="sep=;")
+    frame, _ = _read(path, delimiter=";", rows_before_header=1)
+    assert np.allclose(frame["ustar"].to_numpy(), values[:, 1])
