@@ -1230,7 +1230,10 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
     if backwards.size:
         row = int(backwards[0]) + 1
         back_days = -float(steps[row - 1]) / 86400.0
-        if back_days > 1.0:
+        swapped = _runs_in_reverse_order(stamps, backwards)
+        if swapped:
+            hint = swapped
+        elif back_days > 1.0:
             # records merely out of order are a few records apart; a jump back by days
             # or years is a logger clock reset, which sorting would turn into a false
             # stretch of records far from the rest
@@ -1257,6 +1260,50 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         raise NonMonotonicTimestampError(
             f"stamps go backwards at {_where(source, lines, row)}: {text.iloc[row]!r} comes "
             f"after {text.iloc[row - 1]!r}; {hint}")
+
+
+def _runs_in_reverse_order(stamps: pd.DatetimeIndex, backwards: np.ndarray) -> str:
+    """The fix where a file is two runs of records in time order written in reverse
+    order, the second ending a day or less before the first begins; else "".
+
+    A logger's ring memory read out from the start of its memory rather than from its
+    oldest record gives the newest records first and then the older ones, which end
+    where the newer begin; two files joined end to end in the wrong order (without the
+    second header) look alike. Sorting puts every record in its place, and no stamp
+    repeats, unlike a clock reset (a jump back to the logger's default date, years before
+    the record), whose rows sorting would misplace. The message said "sorting would
+    misplace them" for both.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        The file's stamps in file order (no repeats).
+    backwards : numpy.ndarray of int
+        Positions of the steps that go back in time.
+
+    Returns
+    -------
+    str
+        The hint naming the two runs and the fix, or "".
+
+    References
+    ----------
+    A ring (circular) buffer overwrites its oldest entry and is read in order from the
+    entry after the last one written (common practice).
+    """
+    if backwards.size != 1 or len(stamps) < 4:
+        return ""
+    cut = int(backwards[0]) + 1
+    first, second = stamps[:cut], stamps[cut:]
+    gap = first[0] - second[-1]
+    if gap <= pd.Timedelta(0) or gap > pd.Timedelta(days=1):
+        return ""
+    return (f"the file holds two runs of records in time order, the second "
+            f"({second[0]:%Y-%m-%d %H:%M} .. {second[-1]:%Y-%m-%d %H:%M}) ending "
+            f"{gap / pd.Timedelta(minutes=1):g} minutes before the first "
+            f"({first[0]:%Y-%m-%d %H:%M} .. {first[-1]:%Y-%m-%d %H:%M}) begins: a logger's "
+            "ring memory read out from the start of its memory, or two files joined in the "
+            "wrong order; sort a copy of the file by time (no stamp repeats)")
 
 
 def _scattered_seconds(stamps: pd.DatetimeIndex, steps: np.ndarray, describe,

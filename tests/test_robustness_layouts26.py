@@ -16,7 +16,12 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart.errors import DuplicateTimestampError, InputFileError, TimestampError
+from fluxpart.errors import (
+    DuplicateTimestampError,
+    InputFileError,
+    NonMonotonicTimestampError,
+    TimestampError,
+)
 from fluxpart.io import read_table
 from fluxpart.site import Site
 
@@ -182,3 +187,35 @@ def test_spreadsheet_delimiter_note_counted_by_the_user_reads_as_before(tmp_path
     _write(path, [f"{e:%Y-%m-%d %H:%M}" for e in ends], values, sep=";", first_line="sep=;")
     frame, _ = _read(path, delimiter=";", rows_before_header=1)
     assert np.allclose(frame["ustar"].to_numpy(), values[:, 1])
+
+
+def test_ring_memory_read_from_its_start_is_named(tmp_path):
+    """The newest records first, then the older ones ending one record before them (a
+    ring buffer read from the start of its memory, not from its oldest entry (common
+    practice)): sorting restores the record, and no stamp repeats. Refused as before,
+    but the line now names the two runs and the sort; before it said "sorting would
+    misplace them"."""
+    ends, values = _records()
+    stamps = [f"{e:%Y-%m-%d %H:%M}" for e in ends]
+    path = tmp_path / "ring.csv"
+    _write(path, stamps[150:] + stamps[:150], np.vstack([values[150:], values[:150]]))
+    with pytest.raises(NonMonotonicTimestampError) as caught:
+        _read(path)
+    message = str(caught.value)
+    assert "two runs" in message and "sort a copy of the file by time" in message
+    assert f"{ends[0]:%Y-%m-%d %H:%M} .. {ends[149]:%Y-%m-%d %H:%M}" in message
+    assert "misplace" not in message
+
+
+def test_clock_reset_to_a_default_date_keeps_its_line(tmp_path):
+    """Rows stamped 2000-01-01 after a power loss mid-record: the later records run on
+    after the first ones, so this is no pair of swapped runs; the line still says
+    sorting would misplace them (kept behaviour)."""
+    ends, values = _records()
+    stamps = [f"{e:%Y-%m-%d %H:%M}" for e in ends]
+    stamps[200:204] = [f"2000-01-01 0{k}:00" for k in range(4)]
+    path = tmp_path / "reset.csv"
+    _write(path, stamps, values)
+    with pytest.raises(NonMonotonicTimestampError) as caught:
+        _read(path)
+    assert "misplace" in str(caught.value) and "two runs" not in str(caught.value)
