@@ -2614,13 +2614,15 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}") from None
     source = str(path)
     stamp_text = join_time_columns(raw, time_columns)
-    parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
-                          lines=lines, utc_offset=utc_offset, time_zone=time_zone,
-                          rows_after_header=rows_after_header)
     if time_marks is not None:
+        # before the stamps are parsed: a clock the file states against [input] time_zone
+        # is the cause where civil time then finds a stamp in the skipped spring hour
         _refuse_stated_otherwise(text, header, time_columns, delimiter, rows_before_header,
                                  rows_after_header, time_marks, time_format, time_zone,
                                  utc_offset, source)
+    parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
+                          lines=lines, utc_offset=utc_offset, time_zone=time_zone,
+                          rows_after_header=rows_after_header)
     if time_marks is not None and len(time_columns) == 1:
         _refuse_paired_stamps(raw, stamp_text, time_columns[0], time_format, mapping,
                               flag_columns, time_marks, source)

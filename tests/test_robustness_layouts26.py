@@ -17,6 +17,7 @@ import pandas as pd
 import pytest
 
 from fluxpart.errors import (
+    ConfigError,
     DuplicateTimestampError,
     InputFileError,
     NonMonotonicTimestampError,
@@ -219,3 +220,66 @@ def test_clock_reset_to_a_default_date_keeps_its_line(tmp_path):
     with pytest.raises(NonMonotonicTimestampError) as caught:
         _read(path)
     assert "misplace" in str(caught.value) and "two runs" not in str(caught.value)
+
+
+def _stated(path, first_line, shift_hours=0.0, head="stamp"):
+    ends, values = _records()
+    stamps = [f"{e + pd.Timedelta(hours=shift_hours):%Y-%m-%d %H:%M}" for e in ends]
+    _write(path, stamps, values, head=head, first_line=first_line)
+    return ends, values
+
+
+def test_clock_stated_above_the_header_against_time_zone_is_refused(tmp_path):
+    """"Time zone: UTC+1" above the header and [input] time_zone = "UTC": read as UTC,
+    every record moves an hour at a UTC+1 site. Before, the reader read it so without a
+    word (the file's statement was judged only without time_zone); now refused naming
+    both readings and both fixes."""
+    path = tmp_path / "mast.csv"
+    _stated(path, "Time zone: UTC+1")
+    with pytest.raises(TimestampError) as caught:
+        _read(path, rows_before_header=1, time_zone="UTC")
+    message = str(caught.value)
+    assert "'Time zone: UTC+1'" in message and 'time_zone = "UTC"' in message
+    assert "1 hour(s) apart" in message and "remove time_zone" in message
+
+
+def test_utc_stated_against_a_civil_zone_is_refused_before_the_spring_hour(tmp_path):
+    """"Time zone: UTC" over UTC stamps read as civil time of Europe/Berlin (UTC+1 in
+    winter, UTC+2 in summer: time-zone database (m)): named as the clock the file states,
+    1 to 2 hours apart, with time_zone = "UTC" as the fix; before, the refusal came from
+    the skipped spring hour with "remove time_zone", an hour off still."""
+    ends, values = _records()
+    spring = pd.date_range("2021-03-28 00:30", periods=8, freq="30min")
+    path = tmp_path / "mast.csv"
+    _write(path, [f"{e:%Y-%m-%d %H:%M}" for e in spring], values[:8],
+           first_line="Time zone: UTC")
+    with pytest.raises(TimestampError) as caught:
+        _read(path, rows_before_header=1, time_zone="Europe/Berlin")
+    message = str(caught.value)
+    assert "states stamps in UTC" in message and "1 to 2 hour(s) apart" in message
+    assert 'set time_zone = "UTC"' in message
+
+
+def test_time_column_named_for_another_clock_than_time_zone_is_refused(tmp_path):
+    """A time column "Zeit (MEZ)" (Central European Time, UTC+1 (m)) read with
+    time_zone = "UTC": refused naming both readings."""
+    path = tmp_path / "mast.csv"
+    _stated(path, None, head="Zeit (MEZ)")
+    with pytest.raises(ConfigError) as caught:
+        _read(path, time_column="Zeit (MEZ)", time_zone="UTC")
+    assert "named for stamps in UTC+1" in str(caught.value)
+    assert "remove time_zone" in str(caught.value)
+
+
+@pytest.mark.parametrize(("first_line", "time_zone", "shift"), [
+    ("Time zone: UTC", "UTC", -1.0),            # a UTC logger, said twice
+    ("Logger clock: CEST", "Europe/Berlin", 0.0),   # Berlin's summer time (tz database (m))
+    ("Time zone: Europe/Berlin", "Europe/Berlin", 0.0),
+])
+def test_clock_stated_as_time_zone_reads(tmp_path, first_line, time_zone, shift):
+    """A statement that time_zone keeps (its standard or its summer offset) reads as
+    before (kept behaviour; known truth: the values as written)."""
+    path = tmp_path / "mast.csv"
+    ends, values = _stated(path, first_line, shift_hours=shift)
+    frame, _ = _read(path, rows_before_header=1, time_zone=time_zone)
+    assert np.allclose(frame["rg"].to_numpy(), values[:, 2])
