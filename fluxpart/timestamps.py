@@ -1456,13 +1456,38 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
         mismatch = (f"; [input] interval_minutes = {declared} is set, while most stamps are "
                     f"{typical:g} minutes apart: {fix}"
                     if setting and 2 * irregular.size >= steps.size else "")
+        cause = (_midnight_at_last_minute(stamps, declared)
+                 or _grid_moved(stamps, row, declared, describe))
         raise SpacingError(
             f"stamps are {steps[irregular[0]]:g} minutes apart at {describe(row)} "
             f"({stamps[row - 1]} -> {stamps[row]}), not a whole multiple of the "
             f"{declared}-minute interval; {irregular.size} such step(s), spacings found: "
-            f"{', '.join(found)} minutes{mismatch}"
-            f"{_grid_moved(stamps, row, declared, describe)}")
+            f"{', '.join(found)} minutes{mismatch}{cause}")
     return int(declared)
+
+
+def _midnight_at_last_minute(stamps: pd.DatetimeIndex, interval: int) -> str:
+    """``"; every stamp off the ... grid is 23:59 ..."`` where the only stamps off the
+    clock grid of `interval` minutes are 23:59 (two or more), else ``""``.
+
+    A logger (or its export) that keeps every stamp within the day it closes writes the
+    record ending at midnight as 23:59 of that day, one minute before the grid's 24:00:
+    the steps around it are one minute short and long (29 and 31 minutes), which the
+    spacing check names without a cause.
+
+    References
+    ----------
+    ISO 8601-1:2019 (m): the end of a day is 24:00 of that day, the same instant as 00:00
+    of the next; 23:59 is a minute before it.
+    """
+    minutes = np.asarray(stamps.hour * 60 + stamps.minute, dtype=int)
+    off = (minutes % interval != 0) | (np.asarray(stamps.second) != 0)
+    if off.sum() < 2 or not np.all(minutes[off] == 23 * 60 + 59):
+        return ""
+    return (f"; every stamp off the {interval}-minute clock grid is 23:59 ({int(off.sum())} "
+            "of them): the records ending at midnight seem stamped with the last minute of "
+            "the day they end; write them as 24:00 of that day (or 00:00 of the next) in a "
+            "copy of the file")
 
 
 def _grid_moved(stamps: pd.DatetimeIndex, row: int, interval: int, describe) -> str:

@@ -21,6 +21,7 @@ from fluxpart.errors import (
     DuplicateTimestampError,
     InputFileError,
     NonMonotonicTimestampError,
+    SpacingError,
     TimestampError,
 )
 from fluxpart.io import read_table
@@ -283,3 +284,32 @@ def test_clock_stated_as_time_zone_reads(tmp_path, first_line, time_zone, shift)
     ends, values = _stated(path, first_line, shift_hours=shift)
     frame, _ = _read(path, rows_before_header=1, time_zone=time_zone)
     assert np.allclose(frame["rg"].to_numpy(), values[:, 2])
+
+
+def test_midnight_stamped_at_the_last_minute_of_the_day_is_named(tmp_path):
+    """Every record ending at midnight stamped 23:59 of the day it ends (the end of a day
+    is 24:00, ISO 8601-1 (m)): the steps around it are 29 and 31 minutes. Refused as
+    before, now naming the 23:59 stamps and the fix; before, the spacing alone."""
+    ends, values = _records()
+    stamps = [f"{e - pd.Timedelta(minutes=1):%Y-%m-%d %H:%M}" if e.hour == 0 and e.minute == 0
+              else f"{e:%Y-%m-%d %H:%M}" for e in ends]
+    path = tmp_path / "mast.csv"
+    _write(path, stamps, values)
+    with pytest.raises(SpacingError) as caught:
+        _read(path)
+    message = str(caught.value)
+    midnights = sum(e.hour == 0 and e.minute == 0 for e in ends)
+    assert f"is 23:59 ({midnights} of them)" in message and "24:00" in message
+
+
+def test_a_clock_off_by_a_minute_keeps_its_line(tmp_path):
+    """Stamps at minute 1 and 31 from a day on (a clock set by hand): not the 23:59
+    pattern, so the line stays the grid's (kept behaviour)."""
+    ends, values = _records()
+    stamps = [f"{e + pd.Timedelta(minutes=1 if k >= 100 else 0):%Y-%m-%d %H:%M}"
+              for k, e in enumerate(ends)]
+    path = tmp_path / "mast.csv"
+    _write(path, stamps, values)
+    with pytest.raises(Exception) as caught:
+        _read(path)
+    assert "23:59" not in str(caught.value)
