@@ -1475,6 +1475,18 @@ def _midnight_at_last_minute(stamps: pd.DatetimeIndex, interval: int) -> str:
     the steps around it are one minute short and long (29 and 31 minutes), which the
     spacing check names without a cause.
 
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        The file's stamps.
+    interval : int
+        The record interval [minutes].
+
+    Returns
+    -------
+    str
+        The hint (with its leading "; "), or "".
+
     References
     ----------
     ISO 8601-1:2019 (m): the end of a day is 24:00 of that day, the same instant as 00:00
