@@ -78,6 +78,7 @@ from .timestamps import (
     inserted_runs,
     interval_change_warning,
     join_time_columns,
+    offsets_in_stamps,
     parse_stamps,
 )
 from .unit_checks import (
@@ -2592,6 +2593,11 @@ def _flag_key(column: str) -> str:
     return f"nee_flag:{column}"
 
 
+#: a format of ISO 8601 stamps without a UTC offset, standing for time_format = "ISO8601"
+#: where no stamp of the file carries one (the file's statements of a clock are judged)
+_ISO_WITHOUT_OFFSETS = "%Y-%m-%dT%H:%M:%S"
+
+
 def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_format, missing,
                delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
                utc_offset, warnings, may_lack=False, flag_missing=None,
@@ -2614,11 +2620,22 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}") from None
     source = str(path)
     stamp_text = join_time_columns(raw, time_columns)
+    judged_format = time_format
+    if (time_marks is not None and time_format.upper() == "ISO8601"
+            and not offsets_in_stamps(stamp_text)):
+        # "ISO8601" takes the clock from stamps that carry an offset; stamps without any
+        # are read as local standard time, so a clock the file states is judged as under
+        # a format without offsets (any such format: only its lack of labels counts)
+        judged_format = _ISO_WITHOUT_OFFSETS
+        named = name_conflict_message(time_columns, time_marks, judged_format, time_zone,
+                                      utc_offset)
+        if named:
+            raise ConfigError(named)
     if time_marks is not None:
         # before the stamps are parsed: a clock the file states against [input] time_zone
         # is the cause where civil time then finds a stamp in the skipped spring hour
         _refuse_stated_otherwise(text, header, time_columns, delimiter, rows_before_header,
-                                 rows_after_header, time_marks, time_format, time_zone,
+                                 rows_after_header, time_marks, judged_format, time_zone,
                                  utc_offset, source)
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,

@@ -44,6 +44,7 @@ __all__ = [
     "infer_interval",
     "inserted_runs",
     "join_time_columns",
+    "offsets_in_stamps",
     "parse_stamps",
 ]
 
@@ -417,6 +418,34 @@ def _carries_offset(text: pd.Series, time_format: str) -> bool:
     if time_format.upper() == "ISO8601":
         return bool(text.str.contains(_OFFSET_AT_END).any())
     return False
+
+
+#: a UTC offset or the Z of UTC after a time of day ("13:30Z", "133000z", "13:30:00+02",
+#: "1330+0200"); a date alone ("2021-06-01") ends in no offset
+_OFFSET_AFTER_TIME = re.compile(
+    r"(?:\d[zZ]|\d{2}:?\d{2}(?::?\d{2}(?:[.,]\d+)?)?\s*[+-]\d{2}(?::?\d{2})?)\s*$")
+
+
+def offsets_in_stamps(text: pd.Series) -> bool:
+    """Whether any stamp ends in a UTC offset or the Z of UTC (read under
+    ``time_format = "ISO8601"``, which reads stamps without one as local standard time).
+
+    Parameters
+    ----------
+    text : pandas.Series of str
+        The stamps as joined from the time column(s).
+
+    Returns
+    -------
+    bool
+        True where one stamp or more carries an offset after its time of day.
+
+    References
+    ----------
+    ISO 8601-1:2019 (m) and RFC 3339 section 5.6 (m): a UTC offset (+hh:mm, +hhmm, +hh)
+    or Z after the time; RFC 3339 allows a lower-case z.
+    """
+    return bool(text.str.contains(_OFFSET_AFTER_TIME).any())
 
 
 def _hour_offset(time_format: str) -> int | None:

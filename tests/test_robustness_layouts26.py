@@ -313,3 +313,45 @@ def test_a_clock_off_by_a_minute_keeps_its_line(tmp_path):
     with pytest.raises(Exception) as caught:
         _read(path)
     assert "23:59" not in str(caught.value)
+
+
+def test_iso8601_stamps_without_offsets_are_judged_against_the_stated_clock(tmp_path):
+    """time_format = "ISO8601" reads an offset where a stamp carries one (ISO 8601-1 (m));
+    stamps without any are read as local standard time. "Time zone: UTC" above such
+    stamps at a UTC+1 site was read an hour off without a word (the statement was not
+    judged under "ISO8601"); now refused naming both readings."""
+    ends, values = _records()
+    path = tmp_path / "mast.csv"
+    _write(path, [f"{e - pd.Timedelta(hours=1):%Y-%m-%dT%H:%M:%S}" for e in ends], values,
+           first_line="Time zone: UTC")
+    with pytest.raises(TimestampError) as caught:
+        _read(path, rows_before_header=1, time_format="ISO8601")
+    assert "states stamps in UTC" in str(caught.value)
+    assert 'set time_zone = "UTC"' in str(caught.value)
+    # the fix it names reads every record at its time (known truth: UTC + 1 h = local)
+    frame, _ = _read(path, rows_before_header=1, time_format="ISO8601", time_zone="UTC")
+    assert frame.index[0] == ends[0] - pd.Timedelta(minutes=30)
+    assert np.allclose(frame["rg"].to_numpy(), values[:, 2])
+
+
+def test_iso8601_stamps_with_z_under_a_utc_statement_read(tmp_path):
+    """Stamps that carry the Z of UTC take their clock from it: the statement agrees, and
+    the records read converted to local standard time (kept behaviour; known truth)."""
+    ends, values = _records()
+    path = tmp_path / "mast.csv"
+    _write(path, [f"{e - pd.Timedelta(hours=1):%Y-%m-%dT%H:%M:%SZ}" for e in ends], values,
+           first_line="Time zone: UTC")
+    frame, _ = _read(path, rows_before_header=1, time_format="ISO8601")
+    assert frame.index[0] == ends[0] - pd.Timedelta(minutes=30)
+    assert np.allclose(frame["nee"].to_numpy(), values[:, 0])
+
+
+def test_time_column_named_utc_under_iso8601_without_offsets_is_refused(tmp_path):
+    """A column "time_utc" of ISO stamps without offsets: named for UTC, read as local
+    standard time; refused naming both readings (silent before)."""
+    ends, values = _records()
+    path = tmp_path / "mast.csv"
+    _write(path, [f"{e:%Y-%m-%dT%H:%M:%S}" for e in ends], values, head="time_utc")
+    with pytest.raises(ConfigError) as caught:
+        _read(path, time_column="time_utc", time_format="ISO8601")
+    assert "named for stamps in UTC" in str(caught.value)
