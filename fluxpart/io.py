@@ -2441,7 +2441,8 @@ def _separator_line(text: str, delimiter: str, rows_before_header: int, path: Pa
     """
     if rows_before_header:
         return 0
-    first = text.split("\n", 1)[0].rstrip("\r")
+    end = text.find("\n", 0, 256)          # the note is short: no copy of the whole text
+    first = (text[:256] if end < 0 else text[:end]).rstrip("\r")
     match = _SEPARATOR_LINE.fullmatch(first)
     if match is None:
         return 0
