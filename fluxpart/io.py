@@ -78,6 +78,7 @@ from .timestamps import (
     inserted_runs,
     interval_change_warning,
     join_time_columns,
+    offsets_in_stamps,
     parse_stamps,
 )
 from .unit_checks import (
@@ -2401,6 +2402,64 @@ def _shown_line(line: str) -> str:
     return line if len(line) <= 40 else line[:40] + "..."
 
 
+#: a spreadsheet's note of the delimiter on a file's first line ("sep=;"), quoted or
+#: followed by the delimiter itself where a sheet saved the line again as a row
+_SEPARATOR_LINE = re.compile(r'\s*"?sep=(.)"?(?:\1)*\s*', re.IGNORECASE)
+
+
+def _separator_line(text: str, delimiter: str, rows_before_header: int, path: Path) -> int:
+    """1 where the file's first line is a spreadsheet's note of its delimiter ("sep=;")
+    and no line is set above the header: that line is read as a line above the header.
+
+    Parameters
+    ----------
+    text : str
+        The decoded file.
+    delimiter : str
+        The [input] delimiter (one character, or "whitespace").
+    rows_before_header : int
+        The [input] rows_before_header; where it is not 0, the lines above the header
+        are the setting's (the note among them) and 0 is returned.
+    path : pathlib.Path
+        The file (for the message).
+
+    Returns
+    -------
+    int
+        1 (the note is skipped) or 0 (no note, or rows_before_header set).
+
+    Raises
+    ------
+    InputFileError
+        Where the note names another delimiter than [input] delimiter: the file and the
+        setting disagree, and one of them is wrong.
+
+    References
+    ----------
+    Excel reads a first line "sep=X" as the delimiter of the CSV file that follows and
+    writes it on request; it holds no name and no record (Microsoft documentation of
+    opening CSV files (m); common practice).
+    """
+    if rows_before_header:
+        return 0
+    end = text.find("\n", 0, 256)          # the note is short: no copy of the whole text
+    first = (text[:256] if end < 0 else text[:end]).rstrip("\r")
+    match = _SEPARATOR_LINE.fullmatch(first)
+    if match is None:
+        return 0
+    named = match.group(1)
+    agrees = named == delimiter or (delimiter == _WHITESPACE and named in " \t")
+    if not agrees:
+        shown = "tab" if named == "\t" else repr(named)
+        raise InputFileError(
+            f"input file {str(path)!r}: its first line ({first.strip()!r}) is a "
+            f"spreadsheet's note that the file's delimiter is {shown}, but [input] "
+            f"delimiter = {setting_text(delimiter)}: set delimiter = "
+            f"{setting_text(named)} if the note is right, or delete that line in a copy of "
+            "the file if it is not")
+    return 1
+
+
 def _check_header_line(text: str, delimiter: str, time_columns: tuple,
                        rows_before_header: int, path: Path) -> None:
     """Raise with the right ``rows_before_header`` when the header is on another line.
@@ -2536,6 +2595,11 @@ def _flag_key(column: str) -> str:
     return f"nee_flag:{column}"
 
 
+#: a format of ISO 8601 stamps without a UTC offset, standing for time_format = "ISO8601"
+#: where no stamp of the file carries one (the file's statements of a clock are judged)
+_ISO_WITHOUT_OFFSETS = "%Y-%m-%dT%H:%M:%S"
+
+
 def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_format, missing,
                delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
                utc_offset, warnings, may_lack=False, flag_missing=None,
@@ -2546,6 +2610,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     instead of refused (one of several files).
     """
     text, used_encoding = _decode(path, encoding, warnings)
+    rows_before_header += _separator_line(text, delimiter, rows_before_header, path)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter, rows_before_header,
                                                      rows_after_header, warnings)
@@ -2557,13 +2622,26 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}") from None
     source = str(path)
     stamp_text = join_time_columns(raw, time_columns)
+    judged_format = time_format
+    if (time_marks is not None and time_format.upper() == "ISO8601"
+            and not offsets_in_stamps(stamp_text)):
+        # "ISO8601" takes the clock from stamps that carry an offset; stamps without any
+        # are read as local standard time, so a clock the file states is judged as under
+        # a format without offsets (any such format: only its lack of labels counts)
+        judged_format = _ISO_WITHOUT_OFFSETS
+        named = name_conflict_message(time_columns, time_marks, judged_format, time_zone,
+                                      utc_offset)
+        if named:
+            raise ConfigError(named)
+    if time_marks is not None:
+        # before the stamps are parsed: a clock the file states against [input] time_zone
+        # is the cause where civil time then finds a stamp in the skipped spring hour
+        _refuse_stated_otherwise(text, header, time_columns, delimiter, rows_before_header,
+                                 rows_after_header, time_marks, judged_format, time_zone,
+                                 utc_offset, source)
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)
-    if time_marks is not None:
-        _refuse_stated_otherwise(text, header, time_columns, delimiter, rows_before_header,
-                                 rows_after_header, time_marks, time_format, time_zone,
-                                 utc_offset, source)
     if time_marks is not None and len(time_columns) == 1:
         _refuse_paired_stamps(raw, stamp_text, time_columns[0], time_format, mapping,
                               flag_columns, time_marks, source)
@@ -3069,6 +3147,57 @@ _OVERLAP_SHIFT_MINUTES = (60.0, 120.0)
 _OVERLAP_SHIFT_SHARE = 0.95
 
 
+def _other_step_overlap(parts: list, source_a: str, source_b: str) -> str:
+    """The fix where two overlapping files that disagree hold records at different steps.
+
+    A logger writes several tables (the records of each averaging period, hourly and
+    daily values) to files of similar names, and a pattern in [input] path catches them
+    all ("Mast_*.dat" over "Mast_Flux30.dat" and "Mast_Flux60.dat"): every stamp of the
+    coarser table is also a stamp of the finer one, with the value of another period.
+    The refusal said "remove one copy of the overlap", which names no copy; it now names
+    both steps and the fix.
+
+    Parameters
+    ----------
+    parts : list of dict
+        The files read (``"source"``, ``"stamps"``).
+    source_a, source_b : str
+        The two files of the first stamp that disagrees.
+
+    Returns
+    -------
+    str
+        The fix naming both files' typical steps [minutes], or "" where they agree
+        within half a minute (or a file holds fewer than two stamps).
+
+    References
+    ----------
+    A record's value is the mean (or sum) over its own averaging period, so tables of
+    two periods hold different values at a shared stamp (common practice).
+    """
+    steps, regular = {}, {}
+    for part in parts:
+        if part["source"] in (source_a, source_b):
+            stamps = np.unique(np.asarray(part["stamps"].to_numpy(), dtype="datetime64[s]"))
+            steps[part["source"]] = _median_step(stamps)
+            if stamps.size >= 2:
+                gaps = np.diff(stamps) / np.timedelta64(1, "m")
+                # a table of its own period, not a file with records missing: nine in
+                # ten of its steps are its typical one (our choice of share)
+                regular[part["source"]] = np.mean(gaps == np.median(gaps)) >= 0.9
+    step_a, step_b = steps.get(source_a), steps.get(source_b)
+    if step_a is None or step_b is None or abs(step_a - step_b) <= 0.5:
+        return ""
+    if not regular[source_a if step_a > step_b else source_b]:
+        return ""
+    coarse, fine = (source_a, source_b) if step_a > step_b else (source_b, source_a)
+    return (f"{coarse!r} holds records every {max(step_a, step_b):g} minutes, "
+            f"{fine!r} every {min(step_a, step_b):g} minutes: tables of two averaging "
+            "periods (a logger's hourly or daily table caught by the pattern in [input] "
+            "path?), whose values at a shared stamp differ; list only the files of one "
+            "record interval in path (a narrower pattern or a list of files)")
+
+
 def _shifted_overlap(parts: list, source_a: str, source_b: str) -> str:
     """The fix where two overlapping files agree once one file's stamps are shifted.
 
@@ -3255,7 +3384,8 @@ def _combine(parts: list) -> dict:
                        f"{', '.join(differing)} in one of them only (in a copy), or rename "
                        "them in the other")
             if sources[a] != sources[b]:
-                fix = (_shifted_overlap(parts, sources[a], sources[b])
+                fix = (_other_step_overlap(parts, sources[a], sources[b])
+                       or _shifted_overlap(parts, sources[a], sources[b])
                        or _boundary_shift(parts, pd.Timestamp(stamps[a])) or fix)
                 rounded = _rounding_only(stamps, sources, values, names)
                 if rounded:

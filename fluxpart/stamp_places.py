@@ -458,7 +458,7 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
                     f"{_apart(place, time_marks)} apart; set time_marks = "
                     f"{setting_text(place)} if the file is right, or correct that line in "
                     "a copy of the file if the setting is")
-    if _labelled(time_format) or time_zone is not None or utc_offset is None:
+    if _labelled(time_format) or utc_offset is None:
         return None
     for where, text in statements:
         offset = stated_offset(text)
@@ -466,12 +466,73 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
             offset = column_utc_offset(text)      # "yyyy-mm-dd hh:mm UTC" under the stamps
             if offset is None:                    # "yyyy-mm-dd hh:mm MEZ", "EET"
                 offset = zone_offset(text)
+        if offset is not None and time_zone is not None:
+            against = _zone_setting_conflict(offset, time_zone, utc_offset, "line")
+            if against:
+                return (f"{where} ({text.strip()[:80]!r}) states stamps in {_hours(offset)}, "
+                        f"but {against}")
+            continue
         if offset is not None and not np.isclose(offset, utc_offset):
             return (f"{where} ({text.strip()[:80]!r}) states stamps in {_hours(offset)}, "
                     f"but without [input] time_zone {_read_as(utc_offset, offset)} if the "
                     "file is right, or correct that line in a copy of the file if the "
                     "stamps are in local standard time")
     return None
+
+
+def _zone_setting_conflict(offset: float, time_zone: str, utc_offset: float,
+                           what: str) -> str | None:
+    """The second half of a refusal where the file states stamps in `offset` and
+    [input] time_zone reads them in a zone that never keeps that offset; else None.
+
+    Parameters
+    ----------
+    offset : float
+        The offset the file states [h east of UTC].
+    time_zone : str
+        [input] time_zone, a time-zone database name.
+    utc_offset : float
+        [site] utc_offset [h].
+    what : {"line", "name"}
+        What states the offset (for the fix).
+
+    Returns
+    -------
+    str or None
+        "[input] time_zone = ... reads them in ...: the two readings place every record
+        N hour(s) apart; <fix>", or None where the zone keeps `offset` in January or
+        July (its standard or its summer time) or is no zone of the database.
+
+    References
+    ----------
+    IANA time zone database, read through the standard library's ``zoneinfo`` (m): a
+    zone's offsets in January and July are its standard and its summer time.
+    """
+    from datetime import timezone as _timezone
+    from zoneinfo import ZoneInfo
+
+    try:
+        zone = ZoneInfo(time_zone)
+    except (ValueError, OSError, KeyError):
+        return None
+    held = sorted({datetime(2021, month, 15, 12, tzinfo=_timezone.utc).astimezone(zone)
+                   .utcoffset().total_seconds() / 3600.0 for month in (1, 7)})
+    if any(np.isclose(offset, hours) for hours in held):
+        return None
+    gaps = sorted(abs(offset - hours) for hours in held)
+    apart = f"{gaps[0]:g}" if np.isclose(gaps[0], gaps[-1]) else f"{gaps[0]:g} to {gaps[-1]:g}"
+    if np.isclose(offset, utc_offset):
+        fix = (f"remove time_zone (stamps read as the site's local standard time, [site] "
+               f"utc_offset = {utc_offset:g})")
+    elif offset == 0:
+        fix = 'set time_zone = "UTC"'
+    else:
+        fix = f"set time_zone to a zone of {_hours(offset)}"
+    source = "that line" if what == "line" else "the column's name"
+    return (f"[input] time_zone = {setting_text(time_zone)} reads them in "
+            f"{' and '.join(_hours(hours) for hours in held)}: the two readings place every "
+            f"record {apart} hour(s) apart; {fix} if the file is right, or correct "
+            f"{source} in a copy of the file if the setting is")
 
 
 def _labelled(time_format: str) -> bool:
@@ -527,12 +588,18 @@ def name_conflict_message(time_columns: tuple, time_marks: str, time_format: str
                     f"{_apart(place, time_marks)} apart; set time_marks = "
                     f"{setting_text(place)} if the name is right, or rename the column in a "
                     "copy of the file if the setting is")
-    if _labelled(time_format) or time_zone is not None or utc_offset is None:
+    if _labelled(time_format) or utc_offset is None:
         return None
     for column in time_columns:
         offset = column_utc_offset(column)
         if offset is None:                        # "Zeit (MEZ)", "time_EET"
             offset = zone_offset(column)
+        if offset is not None and time_zone is not None:
+            against = _zone_setting_conflict(offset, time_zone, utc_offset, "name")
+            if against:
+                return (f"[input] time_column {column!r} is named for stamps in "
+                        f"{_hours(offset)}, but {against}")
+            continue
         if offset is not None and not np.isclose(offset, utc_offset):
             return (f"[input] time_column {column!r} is named for stamps in "
                     f"{_hours(offset)}, but without [input] time_zone "

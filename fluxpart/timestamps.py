@@ -44,6 +44,7 @@ __all__ = [
     "infer_interval",
     "inserted_runs",
     "join_time_columns",
+    "offsets_in_stamps",
     "parse_stamps",
 ]
 
@@ -419,6 +420,34 @@ def _carries_offset(text: pd.Series, time_format: str) -> bool:
     return False
 
 
+#: a UTC offset or the Z of UTC after a time of day ("13:30Z", "133000z", "13:30:00+02",
+#: "1330+0200"); a date alone ("2021-06-01") ends in no offset
+_OFFSET_AFTER_TIME = re.compile(
+    r"(?:\d[zZ]|\d{2}:?\d{2}(?::?\d{2}(?:[.,]\d+)?)?\s*[+-]\d{2}(?::?\d{2})?)\s*$")
+
+
+def offsets_in_stamps(text: pd.Series) -> bool:
+    """Whether any stamp ends in a UTC offset or the Z of UTC (read under
+    ``time_format = "ISO8601"``, which reads stamps without one as local standard time).
+
+    Parameters
+    ----------
+    text : pandas.Series of str
+        The stamps as joined from the time column(s).
+
+    Returns
+    -------
+    bool
+        True where one stamp or more carries an offset after its time of day.
+
+    References
+    ----------
+    ISO 8601-1:2019 (m) and RFC 3339 section 5.6 (m): a UTC offset (+hh:mm, +hhmm, +hh)
+    or Z after the time; RFC 3339 allows a lower-case z.
+    """
+    return bool(text.str.contains(_OFFSET_AFTER_TIME).any())
+
+
 def _hour_offset(time_format: str) -> int | None:
     """Character position of the hour in stamps of `time_format`, if fixed, else None."""
     if time_format.count("%H") != 1:
@@ -650,6 +679,68 @@ def _mixed_forms(hint: str, text: pd.Series, failed: np.ndarray, skipped: np.nda
     return hint
 
 
+#: what a spreadsheet writes beside a date or a time that it saves as a date and time:
+#: the midnight of a date cell (24-hour and 12-hour forms), and the day zero of a time
+#: cell, 1899-12-30 in the orders a sheet's locale writes it
+_CELL_MIDNIGHTS = ("00:00:00", "00:00", "0:00:00", "0:00", "12:00:00 AM", "12:00 AM")
+_CELL_DAY_ZEROS = ("1899-12-30", "1899/12/30", "30.12.1899", "30/12/1899", "12/30/1899")
+
+
+def _spreadsheet_cell_time(failed: pd.Series, time_columns, time_format: str) -> str:
+    """Name a date column whose cells carry a midnight time, or a time column whose cells
+    carry the spreadsheet's day zero, with the time_format that reads past it; else "".
+
+    A sheet that holds the date and the time in two columns saves a date cell formatted
+    with a time as "2021-06-01 00:00:00" and a time cell formatted with a date as
+    "1899-12-30 13:30:00", so the joined stamp ("2021-06-01 00:00:00 13:30:00") holds
+    two times (or two dates) and matches no format of one date and one time. The test:
+    several time columns, a format of a date, a space and a time (:func:`_date_part`),
+    and every failed stamp read by that format with one of :data:`_CELL_MIDNIGHTS` or
+    :data:`_CELL_DAY_ZEROS` written between its date and its time as literal text, which
+    strptime matches as it is.
+
+    Parameters
+    ----------
+    failed : pandas.Series of str
+        The joined stamps that fail to parse.
+    time_columns : str or tuple of str
+        The [input] time_column setting.
+    time_format : str
+        The [input] time_format setting.
+
+    Returns
+    -------
+    str
+        The hint naming the column, the text it carries and the time_format to write.
+
+    References
+    ----------
+    Excel and LibreOffice keep a date as a day number whose time of day is its fraction,
+    so a date cell holds midnight and a time cell holds day 0, which is 1899-12-30
+    (Microsoft documentation of the 1900 date system (m)).
+    """
+    if isinstance(time_columns, str) or len(time_columns) < 2 or not len(failed):
+        return ""
+    date = _date_part(time_format)
+    if date is None or not time_format[len(date):].startswith(" "):
+        return ""
+    rest = time_format[len(date):]
+    texts = failed.str.strip()
+    for literal in _CELL_MIDNIGHTS + _CELL_DAY_ZEROS:
+        candidate = f"{date} {literal}{rest}"
+        if pd.to_datetime(texts, format=candidate, errors="coerce").notna().all():
+            if literal in _CELL_MIDNIGHTS:
+                what = (f"the date column {time_columns[0]!r} holds the time {literal!r} "
+                        "after each date (a spreadsheet's date cells saved as date and time)")
+            else:
+                what = (f"the time column {time_columns[-1]!r} holds the date {literal!r} "
+                        "before each time (a spreadsheet's time cells saved as date and "
+                        "time: its day zero)")
+            return (f"{what}: write time_format = {setting_text(candidate)}, which reads "
+                    "past it as literal text")
+    return ""
+
+
 def _other_format(stamp: str, time_format: str) -> str:
     """A hint where a stamp fails only for a 12-hour clock, a two-digit year or seconds
     written in one of stamp and format but not the other, else ''."""
@@ -766,6 +857,16 @@ def _fraction_hint(failed: pd.Series, time_format: str) -> str:
         return ("the time fields are whole numbers written with a decimal fraction ("
                 f"{failed.iloc[0].strip()!r}, as a table of floating-point numbers is saved): "
                 "write them as integers in a copy of the file")
+    last = pd.to_numeric(failed.str.strip().str.rsplit(n=1).str[-1], errors="coerce")
+    if len(failed) > 1 and last.notna().all() and (last >= 0).all() and (last < 1).all() \
+            and failed.str.strip().str.contains(r"\s").all():
+        # a sheet keeps a time of day as the fraction of a day (13:30 is 0.5625) and
+        # saves a time cell formatted as a number so (Microsoft documentation of the
+        # 1900 date system (m))
+        return (f"the time field ({failed.iloc[0].strip().rsplit(None, 1)[-1]!r}) is a "
+                "fraction of a day (0.5625 is 13:30), as a spreadsheet saves a time cell "
+                "formatted as a number: format the time column as hh:mm in a copy of the file "
+                "before saving it as CSV, and set time_format to match")
     return ("the stamps hold decimal fractions (a decimal day of year or hour?), which no "
             "time_format reads: write the column as dates and times in a copy of the file "
             "(e.g. 2021-06-01 13:30) and set time_format to match")
@@ -983,6 +1084,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = "; " + _finer_stamp(text.iloc[first], time_format)
         elif _fraction_hint(text[failed], time_format):
             hint = "; " + _fraction_hint(text[failed], time_format)
+        elif _spreadsheet_cell_time(text[failed], time_columns, time_format):
+            hint = "; " + _spreadsheet_cell_time(text[failed], time_columns, time_format)
         elif _other_format(text.iloc[first], time_format):
             hint = "; " + _other_format(text.iloc[first], time_format)
         elif "%" not in time_format and time_format.upper() != "ISO8601":
@@ -1156,7 +1259,10 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
     if backwards.size:
         row = int(backwards[0]) + 1
         back_days = -float(steps[row - 1]) / 86400.0
-        if back_days > 1.0:
+        swapped = _runs_in_reverse_order(stamps, backwards)
+        if swapped:
+            hint = swapped
+        elif back_days > 1.0:
             # records merely out of order are a few records apart; a jump back by days
             # or years is a logger clock reset, which sorting would turn into a false
             # stretch of records far from the rest
@@ -1183,6 +1289,50 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         raise NonMonotonicTimestampError(
             f"stamps go backwards at {_where(source, lines, row)}: {text.iloc[row]!r} comes "
             f"after {text.iloc[row - 1]!r}; {hint}")
+
+
+def _runs_in_reverse_order(stamps: pd.DatetimeIndex, backwards: np.ndarray) -> str:
+    """The fix where a file is two runs of records in time order written in reverse
+    order, the second ending a day or less before the first begins; else "".
+
+    A logger's ring memory read out from the start of its memory rather than from its
+    oldest record gives the newest records first and then the older ones, which end
+    where the newer begin; two files joined end to end in the wrong order (without the
+    second header) look alike. Sorting puts every record in its place, and no stamp
+    repeats, unlike a clock reset (a jump back to the logger's default date, years before
+    the record), whose rows sorting would misplace. The message said "sorting would
+    misplace them" for both.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        The file's stamps in file order (no repeats).
+    backwards : numpy.ndarray of int
+        Positions of the steps that go back in time.
+
+    Returns
+    -------
+    str
+        The hint naming the two runs and the fix, or "".
+
+    References
+    ----------
+    A ring (circular) buffer overwrites its oldest entry and is read in order from the
+    entry after the last one written (common practice).
+    """
+    if backwards.size != 1 or len(stamps) < 4:
+        return ""
+    cut = int(backwards[0]) + 1
+    first, second = stamps[:cut], stamps[cut:]
+    gap = first[0] - second[-1]
+    if gap <= pd.Timedelta(0) or gap > pd.Timedelta(days=1):
+        return ""
+    return (f"the file holds two runs of records in time order, the second "
+            f"({second[0]:%Y-%m-%d %H:%M} .. {second[-1]:%Y-%m-%d %H:%M}) ending "
+            f"{gap / pd.Timedelta(minutes=1):g} minutes before the first "
+            f"({first[0]:%Y-%m-%d %H:%M} .. {first[-1]:%Y-%m-%d %H:%M}) begins: a logger's "
+            "ring memory read out from the start of its memory, or two files joined in the "
+            "wrong order; sort a copy of the file by time (no stamp repeats)")
 
 
 def _scattered_seconds(stamps: pd.DatetimeIndex, steps: np.ndarray, describe,
@@ -1335,13 +1485,50 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
         mismatch = (f"; [input] interval_minutes = {declared} is set, while most stamps are "
                     f"{typical:g} minutes apart: {fix}"
                     if setting and 2 * irregular.size >= steps.size else "")
+        cause = (_midnight_at_last_minute(stamps, declared)
+                 or _grid_moved(stamps, row, declared, describe))
         raise SpacingError(
             f"stamps are {steps[irregular[0]]:g} minutes apart at {describe(row)} "
             f"({stamps[row - 1]} -> {stamps[row]}), not a whole multiple of the "
             f"{declared}-minute interval; {irregular.size} such step(s), spacings found: "
-            f"{', '.join(found)} minutes{mismatch}"
-            f"{_grid_moved(stamps, row, declared, describe)}")
+            f"{', '.join(found)} minutes{mismatch}{cause}")
     return int(declared)
+
+
+def _midnight_at_last_minute(stamps: pd.DatetimeIndex, interval: int) -> str:
+    """``"; every stamp off the ... grid is 23:59 ..."`` where the only stamps off the
+    clock grid of `interval` minutes are 23:59 (two or more), else ``""``.
+
+    A logger (or its export) that keeps every stamp within the day it closes writes the
+    record ending at midnight as 23:59 of that day, one minute before the grid's 24:00:
+    the steps around it are one minute short and long (29 and 31 minutes), which the
+    spacing check names without a cause.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        The file's stamps.
+    interval : int
+        The record interval [minutes].
+
+    Returns
+    -------
+    str
+        The hint (with its leading "; "), or "".
+
+    References
+    ----------
+    ISO 8601-1:2019 (m): the end of a day is 24:00 of that day, the same instant as 00:00
+    of the next; 23:59 is a minute before it.
+    """
+    minutes = np.asarray(stamps.hour * 60 + stamps.minute, dtype=int)
+    off = (minutes % interval != 0) | (np.asarray(stamps.second) != 0)
+    if off.sum() < 2 or not np.all(minutes[off] == 23 * 60 + 59):
+        return ""
+    return (f"; every stamp off the {interval}-minute clock grid is 23:59 ({int(off.sum())} "
+            "of them): the records ending at midnight seem stamped with the last minute of "
+            "the day they end; write them as 24:00 of that day (or 00:00 of the next) in a "
+            "copy of the file")
 
 
 def _grid_moved(stamps: pd.DatetimeIndex, row: int, interval: int, describe) -> str:
