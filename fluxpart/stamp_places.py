@@ -342,8 +342,12 @@ def stated_place(text: str, cell: bool = False) -> str | None:
 #: in passing ("NEE before the campaign period start was removed", "Calibration period
 #: end") states no place of the stamps (round review31).
 _LINE_PLACE = re.compile(
-    r"(?:(?:time|times|time\s*stamps?|timestamps?|stamps?|date\s*/\s*time|datetime)"
-    r"(?:\s+(?:convention|reference|label|labels|mark|marks|position|place))?\s*[:=]\s*)?"
+    r"(?:(?:(?:time|times|time\s*stamps?|timestamps?|stamps?|date\s*/\s*time|datetime)"
+    r"(?:\s+(?:convention|reference|label|labels|mark|marks|position|place))?"
+    r"|convention)\s*[:=]\s*"
+    # "Data stamped at period end", "Times are interval start", "Logged at interval end"
+    r"|(?:(?:data|values|records|times?|time\s*stamps?|timestamps?|stamps?)\s+)?"
+    r"(?:is|are|stamped|logged|recorded|labell?ed|marked)\s+(?:at\s+)?(?:the\s+)?)?"
     r"(?:(?:averaging|measurement|sampling|logging|record|recording)\s+)*"
     r"(?:interval|period|averaging)\s+"
     r"(start|beginning|begin|end|middle|centre|center|midpoint)"

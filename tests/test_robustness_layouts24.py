@@ -313,6 +313,9 @@ def test_start_stamps_stated_in_a_title_line_are_refused(tmp_path):
     # a spreadsheet's empty cells after the statement, a closing full stop (round review31)
     ('"Period start",,,,', "start"),
     ("Timestamps: period end.", "end"),
+    ("Data stamped at period end", "end"),
+    ("Times are interval start", "start"),
+    ("Convention: period end", "end"),
     # a sentence or a name that uses the words in passing states no place of the stamps
     # (round review31: a note line refused files whose time_marks were right)
     ("Tower notes: NEE before the campaign period start was removed", None),
@@ -321,6 +324,7 @@ def test_start_stamps_stated_in_a_title_line_are_refused(tmp_path):
     ("Calibration period end", None),
     ("Measurement period start date", None),
     ("Reporting period start", None),
+    ("Gaps are at the period end of each file", None),
 ])
 def test_a_period_start_line_without_a_date_states_the_place(text, expected):
     assert stated_place(text) == expected
