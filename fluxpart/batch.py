@@ -1339,6 +1339,7 @@ def same_name_sites(outcomes, same_records=()) -> list[str]:
     there, not two towers.
     """
     groups: dict[str, list[tuple[str, str, tuple, set | None]]] = {}
+    targets: dict[str, str] = {}          # key -> the site config's real file
     for outcome in outcomes:
         if outcome.status == "failed":
             continue
@@ -1351,11 +1352,27 @@ def same_name_sites(outcomes, same_records=()) -> list[str]:
         if isinstance(name, str) and name.strip():
             groups.setdefault(" ".join(name.split()).casefold(), []).append(
                 (outcome.key, name, hashes, _years(outcome)))
+            targets[outcome.key] = os.path.realpath(str(outcome.config))
     return [f"sites {', '.join(repr(k) for k, _, _, _ in members)} carry the same [site] name "
             f"{members[0][1]!r} but were computed from different input files: the network "
             "tables hold one name for different towers; give each its own [site] name (and "
-            "check its latitude and longitude)"
+            f"check its latitude and longitude){_shared_config_note(members, targets)}"
             for members in groups.values() if _same_years_other_inputs(members, same_records)]
+
+
+def _shared_config_note(members, targets: dict) -> str:
+    """The advice where the sites of one name read one site config through links.
+
+    Links to one shared config in each tower's folder (each reading its own input, kept
+    since round review30) give every tower that config's one ``[site]`` table: its name
+    cannot differ without a config of its own per tower (round review31).
+    """
+    shared = {targets.get(key) for key, _, _, _ in members}
+    if len(shared) != 1 or None in shared:
+        return ""
+    return (f": they read one site config through links ({shared.pop()}), so each tower "
+            "needs a site config of its own for its [site] table (copy the shared one "
+            "into each tower's folder)")
 
 
 #: Settings that belong to one site by nature, left out of :func:`different_settings_sites`:

@@ -30,7 +30,16 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["month_runs_text", "unmeasured_months"]
+__all__ = ["CHECKED_OUTAGE_DAYS", "month_runs_text", "unchecked_months",
+           "unmeasured_months"]
+
+#: The longest outage of measured NEE on which the stated 95 % intervals' coverage was
+#: measured [days]: the calibration archetype with the longest gaps and
+#: ``bench_outages.py`` plant outages of 14-21 days (DEVELOPERS.md, benchmark table).
+#: A month without a measured record inside a shorter outage (a few hours or days of
+#: a month at the start or end of a record) is an outage the intervals were checked
+#: on; a whole calendar month without one (28-31 days) always lasts longer.
+CHECKED_OUTAGE_DAYS = 21.0
 
 
 def unmeasured_months(stamps, measured) -> list[pd.Period]:
@@ -92,3 +101,57 @@ def month_runs_text(months) -> str:
             runs.append([month, month])
     return ", ".join(f"{first}" if first == last else f"{first} to {last}"
                      for first, last in runs)
+
+
+def unchecked_months(stamps, measured, longest_days: float = CHECKED_OUTAGE_DAYS
+                     ) -> list[pd.Period]:
+    """The months of :func:`unmeasured_months` that lie in an outage longer than `longest_days`.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        The records of one budget year (interval starts, local standard time), in time
+        order.
+    measured : array_like of bool
+        Per record: NEE measured (not gap-filled, not left unfilled) [1].
+    longest_days : float
+        The longest outage on which the intervals' coverage was measured [days]
+        (:data:`CHECKED_OUTAGE_DAYS`).
+
+    Returns
+    -------
+    list of pandas.Period
+        Monthly periods holding records of `stamps` and no measured one, where the run
+        of unmeasured records around the month (from the record after the last measured
+        one before it, or the first record, to the record before the first measured one
+        after it, or the last record, plus one record's interval) lasts longer than
+        `longest_days`; in time order. Every whole calendar month without a measured
+        record is such a month; a part of a month at the start or end of the records,
+        unmeasured for less, is not (round review31: six hours of a tower's first day,
+        31 March, named "a month without measured NEE" whose sums were model output).
+
+    References
+    ----------
+    Common practice: a month is the unit of the monthly budget table. The outage length
+    is the one the project's calibration and outage benchmarks covered (DEVELOPERS.md).
+    """
+    stamps = pd.DatetimeIndex(stamps)
+    measured = np.asarray(measured, dtype=bool)
+    months = unmeasured_months(stamps, measured)
+    if not months:
+        return []
+    ticks = stamps.to_numpy().astype("datetime64[ns]").astype(np.int64)   # any unit
+    step = int(np.median(np.diff(ticks))) if ticks.size > 1 else 0
+    where = np.flatnonzero(measured)
+    keys = np.asarray(stamps.year, dtype=np.int64) * 12 + np.asarray(stamps.month) - 1
+    limit = pd.Timedelta(days=float(longest_days)).value
+    out = []
+    for month in months:
+        inside = np.flatnonzero(keys == month.year * 12 + month.month - 1)
+        before = where[where < inside[0]]
+        after = where[where > inside[-1]]
+        first = before[-1] + 1 if before.size else 0
+        last = after[0] - 1 if after.size else ticks.size - 1
+        if ticks[last] - ticks[first] + step > limit:
+            out.append(month)
+    return out

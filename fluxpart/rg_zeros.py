@@ -56,7 +56,8 @@ def rg_zero_in_daylight(rg, potential, stamps=None, columns=None) -> str | None:
     -------
     str or None
         The warning text; None where fewer than three records (:data:`_MIN_RECORDS`)
-        with potential radiation of :data:`DAYLIGHT_POTENTIAL` or more read Rg <= 0.
+        with potential radiation of :data:`DAYLIGHT_POTENTIAL` or more, in them and in
+        the records on either side, read Rg <= 0.
 
     Notes
     -----
@@ -68,20 +69,40 @@ def rg_zero_in_daylight(rg, potential, stamps=None, columns=None) -> str | None:
     written for a lost one (or a covered sensor). Such records are night for the night
     mask (Rg below ``night_rg_threshold``) while their NEE is the day's uptake, and the
     respiration fits and the night fills read that uptake as respiration. A whole day or
-    more at 0 is named by the stuck-sensor check as well.
+    more at 0 is named by the stuck-sensor check as well. The records on either side
+    must see the sun that high too, so that a clock the clock check lets through (off
+    by up to two thirds of a record) cannot put a record at dawn or dusk, where a
+    pyranometer's thermal offset under thick cloud reads 0 or less, among them (round
+    review31: hourly records 39 minutes ahead of the sun with an offset of -6 and
+    -10 W m-2 were named in 4 and 20 of 64 generated site-years).
 
     References
     ----------
     Kasten, F., & Czeplak, G. (1980). Solar and terrestrial radiation dependent on the
     amount and type of cloud. Solar Energy 24(2):177-189.
     doi:10.1016/0038-092X(80)90391-6 (m)
+
+    ISO 9060:2018. Solar energy -- Specification and classification of instruments for
+    measuring hemispherical solar and direct solar radiation (zero offset a: the reading
+    under a net thermal radiation of -200 W m-2, up to 7, 15 and 30 W m-2 for classes
+    A, B and C) (m)
     """
     rg = np.asarray(rg, dtype=float)
     potential = np.asarray(potential, dtype=float)
     if rg.size == 0 or rg.shape != potential.shape:
         return None
     with np.errstate(invalid="ignore"):
-        sunlit = potential >= DAYLIGHT_POTENTIAL
+        up = potential >= DAYLIGHT_POTENTIAL
+    # the sun well up in the records on either side too: the clock check passes a clock
+    # off by up to two thirds of a record (clock.shift_threshold_minutes), and with the
+    # stamps that far ahead of the sun a pyranometer's thermal offset (ISO 9060:2018,
+    # zero offset a, up to 15 W m-2 for a class B sensor (m)) reads 0 or less at dawn
+    # under thick cloud (round review31)
+    sunlit = up.copy()
+    sunlit[1:] &= up[:-1]
+    sunlit[:-1] &= up[1:]
+    sunlit[[0, -1]] = False
+    with np.errstate(invalid="ignore"):
         hit = sunlit & (rg <= 0.0)                        # NaN compares False
     count = int(hit.sum())
     if count < _MIN_RECORDS:
@@ -95,7 +116,8 @@ def rg_zero_in_daylight(rg, potential, stamps=None, columns=None) -> str | None:
                  f"{pd.Timestamp(index[int(np.flatnonzero(hit)[0])]):%Y-%m-%d %H:%M}")
     column = (columns or {}).get("rg", "rg")
     return (f"rg (column {column!r}) reads 0 W m-2 or less in {count} records with the sun "
-            f"well up (potential radiation {DAYLIGHT_POTENTIAL:g} W m-2 or more; "
+            f"well up (potential radiation {DAYLIGHT_POTENTIAL:g} W m-2 or more, also a "
+            f"record before and after; "
             f"{count / max(present, 1):.1%} of those present{where}): even the thickest "
             "overcast passes tens of W m-2 of diffuse light there (Kasten & Czeplak 1980), "
             "so 0 looks like the logger's code for a lost value (or a sensor covered by "

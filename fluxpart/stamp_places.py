@@ -334,33 +334,47 @@ def stated_place(text: str, cell: bool = False) -> str | None:
     return found.pop() if len(found) == 1 else None
 
 
-#: "period start", "interval end", "averaging period start" on a line above the header
-_LINE_PLACE = re.compile(r"\b(?:interval|period|averaging)\s+"
-                         r"(start|beginning|begin|end|middle|centre|center|midpoint)\b")
-#: any place word, to leave a line naming two places ("period start and end") unread
-_ANY_PLACE = re.compile(r"(?<![a-z])(start|beginning|begin|end|middle|centre|center|"
-                        r"midpoint)(?![a-z])")
+#: A line above the header that is nothing but a statement of the stamps' place: an
+#: optional key about the stamps ("Time:", "Time convention:", "Timestamps ="), optional
+#: words for the interval ("averaging", "measurement" ...), "interval" or "period" (or
+#: "averaging") and the place, optionally "time" or "stamp(s)" after it, and nothing else
+#: (comment marks, quotes, empty cells and a closing full stop aside). A sentence that uses the words
+#: in passing ("NEE before the campaign period start was removed", "Calibration period
+#: end") states no place of the stamps (round review31).
+_LINE_PLACE = re.compile(
+    r"(?:(?:(?:time|times|time\s*stamps?|timestamps?|stamps?|date\s*/\s*time|datetime)"
+    r"(?:\s+(?:convention|reference|label|labels|mark|marks|position|place))?"
+    r"|convention)\s*[:=]\s*"
+    # "Data stamped at period end", "Times are interval start", "Logged at interval end"
+    r"|(?:(?:data|values|records|times?|time\s*stamps?|timestamps?|stamps?)\s+)?"
+    r"(?:is|are|stamped|logged|recorded|labell?ed|marked)\s+(?:at\s+)?(?:the\s+)?)?"
+    r"(?:(?:averaging|measurement|sampling|logging|record|recording)\s+)*"
+    r"(?:interval|period|averaging)\s+"
+    r"(start|beginning|begin|end|middle|centre|center|midpoint)"
+    r"(?:\s+(?:time|times|time\s*stamps?|timestamps?|stamps?))?")
 
 
 def _line_place(spaced: str, places: dict) -> set:
     """The place a line above the header states as "period start" or "interval end".
 
     Such a line is a statement of the stamps' place ("Period start", "Time: interval
-    end", "Time convention: averaging period start") only where nothing dates it: a
-    key followed by a value ("Period start: 2021-01-01", "Period start =") or a digit
-    after the words ("Period start 2021-01-01 00:00") dates the record instead, and a
-    line naming another place word too ("period start and end in UTC") is left unread.
-    Before round review30 every such line was left unread, and a file stating "Period
-    start" over its start stamps was read one interval early under time_marks = "end".
+    end", "Time convention: averaging period start", "Period start time") only where it
+    says nothing else (:data:`_LINE_PLACE`, the whole line): a key followed by a value
+    ("Period start: 2021-01-01", "Period start =") or a date after the words ("Period
+    start 2021-01-01 00:00") dates the record instead, a line naming another place word
+    too ("period start and end in UTC") is left unread, and so is a sentence that uses
+    the words in passing ("NEE before the campaign period start was removed",
+    "Calibration period end"): round review31 found such a note line refusing a file
+    whose time_marks were right. Before round review30 every such line was left unread,
+    and a file stating "Period start" over its start stamps was read one interval early
+    under time_marks = "end".
     """
-    matches = list(_LINE_PLACE.finditer(spaced))
-    if len(matches) != 1:
+    # comment marks, quotes and a spreadsheet's empty cells ("Period start,,,,") aside
+    line = spaced.strip(" \t#;,/*!%'\"").rstrip(".").strip(" \t#;,/*!%'\"")
+    match = _LINE_PLACE.fullmatch(line)
+    if match is None:
         return set()
-    after = spaced[matches[0].end():]
-    if re.search(r"\d", after) or re.match(r"\s*(?:time\s*)?[:=]", after):
-        return set()
-    words = {places.get(m.group(1), m.group(1)) for m in _ANY_PLACE.finditer(spaced)}
-    return words if len(words) == 1 else set()
+    return {places.get(match.group(1), match.group(1))}
 
 
 def stated_offset(text: str) -> float | None:

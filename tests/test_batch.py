@@ -579,6 +579,42 @@ def test_sites_of_different_inputs_under_one_name_are_warned_about(tmp_path):
     assert len(batch.same_input_sites(outcomes[2:])) == 1
 
 
+def test_towers_linked_to_one_shared_config_are_told_to_take_a_config_each(tmp_path):
+    """Known truth (invented folders): two towers' folders each link one shared site
+    config (POSIX symbolic links, each tower reading its own input, kept since round
+    review30), so both carry its one [site] name. The same-name warning told them to
+    "give each its own [site] name", which the shared config cannot; now it names the
+    shared file and says that each tower needs a config of its own (round review31).
+    Configs of their own under one name keep the plain advice."""
+    shared = tmp_path / "shared" / "site.toml"
+    shared.parent.mkdir()
+    shared.write_text("[site]\n")
+
+    def folder(key, sha, config):
+        directory = tmp_path / "out" / key
+        directory.mkdir(parents=True)
+        (directory / "manifest.json").write_text(json.dumps({
+            "site": {"name": "Quillmoor meadows"},
+            "provenance": {"input": {"path": "tower.csv", "sha256": sha}}}))
+        return batch.SiteOutcome(key=key, config=str(config), directory=str(directory),
+                                 status="written")
+
+    links = []
+    for name in ("a", "b"):
+        (tmp_path / name).mkdir()
+        (tmp_path / name / "site.toml").symlink_to(Path("..") / "shared" / "site.toml")
+        links.append(tmp_path / name / "site.toml")
+    (warning,) = batch.same_name_sites([folder("a-site", "aa", links[0]),
+                                        folder("b-site", "bb", links[1])])
+    assert "give each its own [site] name" in warning
+    assert f"one site config through links ({shared.resolve()})" in warning
+    own = [tmp_path / "c.toml", tmp_path / "d.toml"]
+    for config in own:
+        config.write_text("[site]\n")
+    (warning,) = batch.same_name_sites([folder("c", "cc", own[0]), folder("d", "dd", own[1])])
+    assert "through links" not in warning
+
+
 def test_one_tower_split_into_configs_per_year_is_not_warned_about(tmp_path):
     """One tower's record in one config per year (a new logger program, other columns):
     different inputs under one [site] name but no year in common, so the network

@@ -142,3 +142,48 @@ def test_unmeasured_months_follow_the_calendar():
     assert unmeasured_months(index[:0], measured[:0]) == []
     with pytest.raises(ValueError, match="one per stamp"):
         unmeasured_months(index, measured[:5])
+
+
+def test_a_few_unmeasured_hours_of_a_month_at_the_records_edge_are_not_named():
+    """Known truth on an invented tower installed on 31 March 2021 at 18:00 whose first
+    six hours of NEE were rejected (round review31): the warning named March as "a month
+    without measured NEE", its sums model output and its intervals no calibrated
+    interval, for 12 half-hours (0 % of the year's |NEE|), and so did the report's card.
+    Six hours are an outage the intervals' coverage was measured on (outages of up to 21
+    days, DEVELOPERS.md); a whole calendar month without a measured record lasts 28 to 31
+    days (the standard library's calendar.monthrange) and is always named, and so is an
+    edge of a month unmeasured for longer than 21 days."""
+    import calendar
+
+    import numpy as np
+
+    from fluxpart import report
+    from fluxpart.budget_warnings import _unmeasured_months_warning
+    from fluxpart.figures import Written
+    from fluxpart.measured_months import CHECKED_OUTAGE_DAYS, unchecked_months
+
+    assert min(calendar.monthrange(year, month)[1] for year in (2021, 2024)
+               for month in range(1, 13)) == 28 > CHECKED_OUTAGE_DAYS
+    index = pd.date_range("2021-03-31 18:00", "2021-12-31 23:30", freq="30min")
+    quality = np.where(index < pd.Timestamp("2021-04-01 00:00"), 3, 0)
+    timeseries = pd.DataFrame({"nee_filled": -1.0, "nee_fill_quality": quality}, index=index)
+    row, in_year = pd.Series({"complete": False}), np.ones(index.size, dtype=bool)
+    assert _unmeasured_months_warning(2021, row, timeseries, in_year) == []
+    assert unchecked_months(index, quality == 0) == []
+    annual = pd.DataFrame({"nee": [-150.0], "nee_ci95_low": [-300.0], "nee_ci95_high": [0.0],
+                           "ustar_threshold": [0.15]}, index=pd.Index([2021], name="year"))
+    written = Written(manifest={}, tables={"timeseries": timeseries, "annual": annual,
+                                           "ustar": pd.DataFrame()})
+    assert "unmeasured_months" not in report._summary_card(written)[0]
+    # installed on 7 March, measured from 1 April: 25 days unmeasured, March named
+    index = pd.date_range("2021-03-07", "2021-12-31 23:30", freq="30min")
+    quality = np.where(index < pd.Timestamp("2021-04-01"), 3, 0)
+    timeseries = pd.DataFrame({"nee_filled": -1.0, "nee_fill_quality": quality}, index=index)
+    (text,) = _unmeasured_months_warning(2021, row, timeseries,
+                                         np.ones(index.size, dtype=bool))
+    assert "1 of its 10 months hold no measured NEE (2021-03)" in text
+    # a record ending on 20 December: December's 20 unmeasured days not named; an outage
+    # from 25 November on (26 days) names December (November holds measured records)
+    index = pd.date_range("2021-01-01", "2021-12-20 23:30", freq="30min")
+    for start, expected in (("2021-12-01", []), ("2021-11-25", [pd.Period("2021-12", "M")])):
+        assert unchecked_months(index, index < pd.Timestamp(start)) == expected

@@ -66,6 +66,34 @@ def test_a_library_version_that_differs_is_named_with_both_versions():
     assert mismatch_error(here) is None and mismatch_error(None) is None
 
 
+def test_a_worker_of_another_patch_release_is_named_as_decided(tmp_path):
+    """Decided in round review31 (README "batch"): a worker whose Python or PyArrow is
+    another patch release than the client's fails its site too. The manifest records
+    these versions and the rerun's up-to-date test compares them as written
+    (``batch._stale_reason``), and PyArrow writes its own version into the footer of
+    every Parquet file it writes ("created_by", Apache Parquet format specification,
+    FileMetaData (m)), so a table of another PyArrow has other bytes and another
+    SHA-256 in the manifest. Checked here on a table this library writes: its version
+    is in the file's bytes."""
+    import platform
+
+    import pandas as pd
+    import pyarrow
+
+    table = tmp_path / "t.parquet"
+    pd.DataFrame({"nee": [1.0, -2.5]}).to_parquet(table, engine="pyarrow")
+    assert f"version {pyarrow.__version__}".encode() in table.read_bytes()
+    here = client_environment()
+    major, minor, patch = platform.python_version_tuple()
+    other = f"{major}.{minor}.{int(''.join(c for c in patch if c.isdigit()) or 0) + 1}"
+    for name, version in (("python", other), ("pyarrow", pyarrow.__version__ + ".post1")):
+        theirs = {**here, "versions": {**here["versions"], name: version}}
+        text = str(mismatch_error(theirs))
+        assert f"{name} {here['versions'][name]} on the worker, {version} on the client" \
+            in text
+    assert mismatch_error(here) is None
+
+
 def test_a_cluster_of_an_older_release_is_named_not_a_traceback():
     """A scheduler or worker whose fluxpart predates the check looks the task function
     up by name in its own ``fluxpart.batch`` (Dask pickles a function by reference (m);

@@ -310,6 +310,21 @@ def test_start_stamps_stated_in_a_title_line_are_refused(tmp_path):
     ("Reporting period start = 1 Jan 2021", None),
     ("Period start and end in UTC", None),
     ("Period start/end", None),
+    # a spreadsheet's empty cells after the statement, a closing full stop (round review31)
+    ('"Period start",,,,', "start"),
+    ("Timestamps: period end.", "end"),
+    ("Data stamped at period end", "end"),
+    ("Times are interval start", "start"),
+    ("Convention: period end", "end"),
+    # a sentence or a name that uses the words in passing states no place of the stamps
+    # (round review31: a note line refused files whose time_marks were right)
+    ("Tower notes: NEE before the campaign period start was removed", None),
+    ("Data from the study period start onwards were gap-filled", None),
+    ("Values near the interval end may be affected by calibration", None),
+    ("Calibration period end", None),
+    ("Measurement period start date", None),
+    ("Reporting period start", None),
+    ("Gaps are at the period end of each file", None),
 ])
 def test_a_period_start_line_without_a_date_states_the_place(text, expected):
     assert stated_place(text) == expected
@@ -337,3 +352,24 @@ def test_start_stamps_under_a_period_start_line_are_refused_as_ends(tmp_path):
                    top=[f"Period start: {starts[0]:%Y-%m-%d}"])
     frame, _ = _read(dated, rows_before_header=1)
     assert frame.index[0] == starts[0] - pd.Timedelta(minutes=30)
+
+
+def test_end_stamps_under_a_note_that_mentions_a_period_start_are_read_as_set(tmp_path):
+    """Known truth (invented records): interval ends, read with time_marks = "end", under
+    a free-text note line above the header that uses "period start" in passing. Since
+    round review30 every such line was read as a statement of the stamps' place and the
+    file was refused ("set time_marks = \"start\""), also the grassland example with
+    such a note; the note states nothing about the stamps, so the file reads as its
+    settings say (interval starts 30 min before the written ends)."""
+    ends, values = _records()
+    for note in ("Tower notes: NEE before the campaign period start was removed",
+                 "Calibration period end,,,,"):
+        path = _write(tmp_path / "n.csv", ends.strftime("%Y-%m-%d %H:%M"), values,
+                      top=[note])
+        frame, _ = _read(path, rows_before_header=1)
+        assert frame.index[0] == ends[0] - pd.Timedelta(minutes=30)
+    # the same stamps under a line that is nothing but the statement are still refused
+    path = _write(tmp_path / "s.csv", ends.strftime("%Y-%m-%d %H:%M"), values,
+                  top=["Period start,,,,"])
+    with pytest.raises(TimestampError, match='set time_marks = "start"'):
+        _read(path, rows_before_header=1)
