@@ -1283,6 +1283,25 @@ def same_records_sites(outcomes) -> list[str]:
     day_keys`); two sites sharing :data:`fluxpart.shared_records.MIN_SHARED_DAYS` days or
     more of identical values at identical stamps are named. Pairs of the same input
     files are left to :func:`same_input_sites`.
+
+    Parameters
+    ----------
+    outcomes : iterable of SiteOutcome
+        The batch's sites; failed ones are skipped, and a folder whose
+        ``timeseries.parquet`` cannot be read is left out.
+
+    Returns
+    -------
+    list of str
+        One warning per pair of sites, naming both keys, the number of shared days and
+        their first and last day.
+
+    References
+    ----------
+    Richardson, A. D. et al. (2006). A multi-site analysis of random error in
+    tower-based measurements of carbon and energy fluxes. Agricultural and Forest
+    Meteorology 136:1-18: independent towers never write the same NEE record after
+    record (m).
     """
     return _same_records_warnings(_same_record_pairs(outcomes))
 
@@ -1337,6 +1356,24 @@ def same_name_sites(outcomes, same_records=()) -> list[str]:
     its rows told apart by year. Pairs of keys in `same_records` (sets of two keys whose
     measured NEE is the same, :func:`same_records_sites`) are one tower's records, named
     there, not two towers.
+
+    Parameters
+    ----------
+    outcomes : iterable of SiteOutcome
+        The batch's sites; failed ones and folders without a readable manifest are
+        skipped.
+    same_records : iterable of set, optional
+        Pairs of site keys whose measured NEE is the same (:func:`same_records_sites`).
+
+    Returns
+    -------
+    list of str
+        One warning per group of sites sharing a name, naming the keys and the name.
+
+    References
+    ----------
+    Unicode Standard, section 5.18 "Case Mappings": names compared after case folding
+    (m); common practice: a network table joins other data by site name.
     """
     groups: dict[str, list[tuple[str, str, tuple, set | None]]] = {}
     targets: dict[str, str] = {}          # key -> the site config's real file

@@ -92,6 +92,12 @@ def month_runs_text(months) -> str:
     str
         Each run of consecutive months as ``first to last`` (or the month alone),
         joined by commas; ``""`` for no month.
+
+    References
+    ----------
+    ISO 8601-1:2019, calendar months written ``YYYY-MM`` (m); pandas documentation,
+    "Time spans": the difference of two monthly periods is a month offset whose ``n``
+    counts the months between them (m).
     """
     runs = []
     for month in months:

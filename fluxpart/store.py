@@ -276,6 +276,11 @@ def special_kind(path) -> str:
     command that reads the first bytes of what it was given (to tell an archive, or a
     NetCDF file it may replace) waited without end on a pipe nobody writes. Ask this
     first, without opening.
+
+    References
+    ----------
+    fifo(7) and inode(7): ``S_ISFIFO``, ``S_ISCHR``, ``S_ISBLK`` and ``S_ISSOCK`` of
+    ``stat(2)``'s ``st_mode`` (m).
     """
     import stat
 

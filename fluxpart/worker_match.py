@@ -41,6 +41,11 @@ def client_environment() -> dict:
         the libraries that shape the numbers, :func:`fluxpart.manifest.library_versions`),
         the two records of a result's manifest that decide whether a rerun gives the
         same tables.
+
+    References
+    ----------
+    Dask.distributed documentation, "Futures": a submitted task runs in the worker's
+    own Python process with the worker's imports (m); FIPS PUB 180-4 (2015), SHA-256 (m).
     """
     return {"code": code_fingerprint()["sha256"], "versions": library_versions()}
 
@@ -119,6 +124,13 @@ def older_worker_error(error: BaseException) -> WorkerMismatchError | None:
     the worker look it up in their own release: one older than this check does not
     have it and fails the task before running anything (measured with a scheduler and a
     worker of 0.24.0: a 30-line traceback per site).
+
+    References
+    ----------
+    Dask.distributed documentation, "Futures" and its serialization notes: functions
+    are sent by reference and looked up by module and name where they run (m); Python
+    Language Reference, "The raise statement": ``__cause__`` and ``__context__`` chain
+    an exception to the one it was raised from (m).
     """
     seen = set()
     while error is not None and id(error) not in seen:

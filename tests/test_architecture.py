@@ -93,13 +93,16 @@ def test_the_public_functions_of_the_0_23_modules_have_numpy_docstrings():
     """The house rule (DEVELOPERS.md, Rules of the house): each method's docstring in the
     numpydoc layout (numpydoc's docstring standard, common practice) with its
     Parameters, Returns (or Yields) and a References section. Checked on the modules
-    0.23.0 added, whose helpers lacked some (review28)."""
+    0.23.0 added, whose helpers lacked some (review28), and on those 0.25.0 added
+    (review32). A function without parameters needs no Parameters section (numpydoc's
+    standard lists the parameters a function takes)."""
     import importlib
     import inspect
 
     lacking = []
     for name in ("night_uptake", "stamp_places", "unit_labels", "ustar_fixed",
-                 "input_changes", "partition.pieces", "settings_notes", "gap_sides"):
+                 "input_changes", "partition.pieces", "settings_notes", "gap_sides",
+                 "measured_months", "shared_records", "worker_match", "rg_zeros"):
         module = importlib.import_module(f"fluxpart.{name}")
         names = getattr(module, "__all__", None) or [
             key for key, value in vars(module).items() if not key.startswith("_")
@@ -109,8 +112,31 @@ def test_the_public_functions_of_the_0_23_modules_have_numpy_docstrings():
             if not inspect.isfunction(member):
                 continue
             text = inspect.getdoc(member) or ""
+            takes = bool(inspect.signature(member).parameters)
             for section in ("Parameters", ("Returns", "Yields"), "References"):
                 options = section if isinstance(section, tuple) else (section,)
+                if section == "Parameters" and not takes:
+                    continue
                 if not any(f"{option}\n{'-' * len(option)}" in text for option in options):
                     lacking.append(f"{name}.{public}: {options[0]}")
+    assert not lacking, lacking
+
+
+def test_the_public_functions_added_to_older_modules_since_0_24_have_numpy_docstrings():
+    """The same house rule (numpydoc's docstring standard, common practice) on the public
+    functions 0.25.0 added to modules that existed before it (review32)."""
+    import importlib
+    import inspect
+
+    lacking = []
+    for path in ("_validate.unicode_form_hint", "batch.same_records_sites",
+                 "batch.same_name_sites", "gapfill.fill_marginal_values",
+                 "input_changes.located_changes", "store.full_disk_remedy",
+                 "store.special_kind", "timestamps.offsets_in_stamps"):
+        module_name, public = path.rsplit(".", 1)
+        member = getattr(importlib.import_module(f"fluxpart.{module_name}"), public)
+        text = inspect.getdoc(member) or ""
+        for section in ("Parameters", "Returns", "References"):
+            if f"{section}\n{'-' * len(section)}" not in text:
+                lacking.append(f"{path}: {section}")
     assert not lacking, lacking

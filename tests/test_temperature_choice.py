@@ -446,3 +446,26 @@ def test_the_run_warns_of_a_set_temperature_the_night_data_reject():
     assert any("respiration_driver = 'tsoil' is used as set" in w for w in soil.warnings)
     air = process(frame, demo.site(), Config(respiration_driver="tair", **settings))
     assert not any("is used as set" in w for w in air.warnings)
+
+
+def test_a_choice_that_weak_evidence_can_flip_keeps_the_other_temperature_in_the_interval():
+    """Where the night evidence is too weak to be sure of the choice (|ΔBIC| up to the
+    positive-evidence threshold of Kass & Raftery 1995 (m), :data:`MIN_EVIDENCE_BIC`), a
+    new draw of the same site can flip it and move the central estimate by the whole
+    difference d the other temperature makes. The driver part |d| √w, w the BIC weight of
+    the temperature not chosen (Burnham & Anderson 2002, model averaging (m)), then has to
+    reach d at 95 %: 1.96 √w ≥ 1 on both sides of the threshold (round review32). The
+    quantile from SciPy's normal distribution, the weight from the BIC (Schwarz 1978)."""
+    from scipy.stats import norm
+
+    from fluxpart.uncertainty import bic_weight
+
+    z = norm.ppf(0.975)
+    for delta in np.linspace(-MIN_EVIDENCE_BIC, MIN_EVIDENCE_BIC, 41):
+        # the weight of the temperature not chosen is at least that of the disfavoured
+        # one (inside the threshold with soil favoured, air is kept and soil's weight
+        # is above 1/2)
+        not_chosen = bic_weight(abs(delta))
+        assert z * np.sqrt(not_chosen) >= 1.0, (delta, not_chosen)
+    # beyond strong evidence the interval need not reach the other temperature
+    assert z * np.sqrt(bic_weight(STRONG_EVIDENCE_BIC)) < 1.0
