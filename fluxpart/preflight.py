@@ -52,6 +52,8 @@ months whose NEE falls with it (or weeks
 where no month does)
 NEE on straight lines over runs of        input (nee filled)                  no
 records (gaps filled by interpolation)
+night NEE changing as a running mean's    input (nee smoothed)                no
+(errors shared by neighbouring records)
 air or soil temperature dropping to       input (tair zeros, tsoil zeros)     no
 exactly 0 and back by jumps (a code)
 NEE present and accepted in every record  input (nee gapless)                 no
@@ -85,7 +87,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from . import night_uptake, rg_zeros, solar
+from . import nee_smoothing, night_uptake, rg_zeros, solar
 from .column_faults import (
     PLACEHOLDER_VARIABLES,
     censored_nee,
@@ -448,6 +450,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                 screened.index, names)
             if text:
                 findings.append(Finding("input (nee one sign)", text, False))
+            # a running mean of the records written as NEE (round mistakes28)
+            text = nee_smoothing.smoothed_nee(screened["nee"].to_numpy(dtype=float),
+                                              is_night, names)
+            if text:
+                findings.append(Finding("input (nee smoothed)", text, False))
     for name in PLACEHOLDER_VARIABLES:
         # one value written into gap after gap (round mistakes26)
         if name in screened.columns:
