@@ -454,7 +454,7 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                 findings.append(Finding("input (nee one sign)", text, False))
             # a running mean of the records written as NEE (round mistakes28)
             text = nee_smoothing.smoothed_nee(screened["nee"].to_numpy(dtype=float),
-                                              is_night, names)
+                                              is_night, names, screened.index)
             if text:
                 findings.append(Finding("input (nee smoothed)", text, False))
     for name in PLACEHOLDER_VARIABLES:

@@ -84,3 +84,20 @@ def test_the_demo_is_quiet_and_its_three_record_mean_is_named():
                     if f.stage == "input (nee smoothed)"]
         assert len(findings) == 1 and not findings[0].fatal
         assert "'co2_exchange'" in findings[0].message
+
+
+def test_a_running_mean_from_july_is_named_with_its_month():
+    """Known-truth recovery on the invented Quillmoor site: NEE as a two-record running
+    mean from July only (which moved the example's daytime GPP by -20.6 g C m-2 without
+    a word) is diluted over the whole record; the part from July is named, with its
+    month. Without the stamps the diluted record says nothing."""
+    frame = demo.site_year(0)[0]
+    night = frame["rg"].to_numpy(dtype=float) < 10.0
+    nee = frame["nee"].to_numpy(dtype=float)
+    july = np.asarray(frame.index >= "2021-07-01")
+    mixed = nee.copy()
+    mixed[july] = pd.Series(nee).rolling(2, min_periods=2).mean().to_numpy()[july]
+    assert smoothed_nee(nee, night, None, frame.index) is None
+    text = smoothed_nee(mixed, night, {"nee": "co2_exchange"}, frame.index)
+    assert text is not None and "from 2021-07" in text and "'co2_exchange'" in text
+    assert smoothed_nee(mixed, night) is None
