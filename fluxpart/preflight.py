@@ -47,11 +47,15 @@ NEE changing with Rg whole days earlier   input (nee days)                    no
 or later (files of other dates joined)
 tair fitting VPD and RH whole records     input (tair)                        no
 earlier or later (column shifted)
+tair fitting VPD and RH whole days        input (tair days)                   no
+earlier or later (files of other dates)
 months whose NEE rises with light beside  input (nee sign)                    no
 months whose NEE falls with it (or weeks
 where no month does)
 NEE on straight lines over runs of        input (nee filled)                  no
 records (gaps filled by interpolation)
+night NEE changing as a running mean's    input (nee smoothed)                no
+(errors shared by neighbouring records)
 air or soil temperature dropping to       input (tair zeros, tsoil zeros)     no
 exactly 0 and back by jumps (a code)
 NEE present and accepted in every record  input (nee gapless)                 no
@@ -85,7 +89,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from . import night_uptake, rg_zeros, solar
+from . import nee_smoothing, night_uptake, rg_zeros, solar, tair_days
 from .column_faults import (
     PLACEHOLDER_VARIABLES,
     censored_nee,
@@ -448,6 +452,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                 screened.index, names)
             if text:
                 findings.append(Finding("input (nee one sign)", text, False))
+            # a running mean of the records written as NEE (round mistakes28)
+            text = nee_smoothing.smoothed_nee(screened["nee"].to_numpy(dtype=float),
+                                              is_night, names, screened.index)
+            if text:
+                findings.append(Finding("input (nee smoothed)", text, False))
     for name in PLACEHOLDER_VARIABLES:
         # one value written into gap after gap (round mistakes26)
         if name in screened.columns:
@@ -478,6 +487,13 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                     names)
             if text:
                 findings.append(Finding("input (tair delayed)", text, False))
+            # the air temperature whole days from the humidity (round mistakes28)
+            text = tair_days.tair_day_shift(screened["tair"].to_numpy(dtype=float),
+                                            screened["rh"].to_numpy(dtype=float),
+                                            screened["vpd"].to_numpy(dtype=float),
+                                            interval_minutes, names)
+            if text:
+                findings.append(Finding("input (tair days)", text, False))
         text = dew_point_as_tair(screened["tair"].to_numpy(dtype=float),
                                  screened["rh"].to_numpy(dtype=float),
                                  screened["vpd"].to_numpy(dtype=float), names)

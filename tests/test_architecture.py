@@ -12,7 +12,7 @@ ROOT = Path(fluxpart.__file__).parent
 #: modules that compute a method or stage; a writer of results needs none of them
 METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "column_faults",
                   "driver_mixture", "gap_sides", "gapfill", "method_failure", "partition",
-                  "preflight", "responses", "rg_zeros",
+                  "nee_smoothing", "preflight", "responses", "rg_zeros", "tair_days",
                   "scenarios", "screening", "shared_records", "solar", "storage_check",
                   "uncertainty", "unit_checks", "ustar", "ustar_seasonal", "demo"}
 ORCHESTRATORS = {"pipeline", "batch", "cli", "verify", "diff", "report"}

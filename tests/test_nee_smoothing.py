@@ -1,0 +1,103 @@
+"""NEE written as a running mean of its records (round mistakes28)."""
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart import demo
+from fluxpart.nee_smoothing import SMOOTHED_CORRELATION, smoothed_nee
+from fluxpart.preflight import _column_faults
+
+STEP = 30
+
+
+def _nights(days=120, seed=3):
+    """Invented night records: a slow respiration drift (a 2 K daily swing through
+    Lloyd-Taylor-like warming, here a sine of 1 µmol m-2 s-1) plus independent Laplace
+    errors of 0.6 µmol m-2 s-1, the double-exponential random error of a flux record
+    (Hollinger & Richardson 2005; Richardson et al. 2006 (m))."""
+    rng = np.random.default_rng(seed)
+    n = days * 48
+    index = pd.date_range("2021-05-01", periods=n, freq=f"{STEP}min")
+    hour = index.hour.to_numpy() + index.minute.to_numpy() / 60.0
+    night = (hour < 5.0) | (hour >= 21.0)
+    drift = 3.0 + np.sin(2.0 * np.pi * np.arange(n) / (48 * 9.0))
+    nee = drift + rng.laplace(0.0, 0.6 / np.sqrt(2.0), n)
+    nee[rng.random(n) < 0.25] = np.nan                      # gaps, a quarter of the records
+    return nee, night, index
+
+
+def test_independent_errors_give_minus_a_half_and_a_running_mean_zero():
+    """The outside fact the rule rests on: for independent errors, consecutive
+    differences correlate at -1/2 (var(e_t - e_(t-1)) = 2σ², cov = -σ²); for a mean of
+    two or three records they share no error, correlation 0 (the algebra of moving
+    averages, e.g. Box & Jenkins, Time Series Analysis, MA processes (m)). Checked on
+    numpy's white noise, then the rule: the clean record quiet, its running means named."""
+    e = np.random.default_rng(0).normal(size=200_000)
+    d = np.diff(e)
+    assert np.corrcoef(d[:-1], d[1:])[0, 1] == pytest.approx(-0.5, abs=0.01)
+    for k in (2, 3):
+        m = pd.Series(e).rolling(k).mean().to_numpy()[k:]
+        dm = np.diff(m)
+        assert np.corrcoef(dm[:-1], dm[1:])[0, 1] == pytest.approx(0.0, abs=0.01)
+    assert -0.5 < SMOOTHED_CORRELATION < 0.0
+
+    nee, night, _ = _nights()
+    assert smoothed_nee(nee, night) is None
+    for k in (2, 3):
+        smooth = pd.Series(nee).rolling(k, center=True, min_periods=k).mean().to_numpy()
+        text = smoothed_nee(smooth, night, {"nee": "co2_flux"})
+        assert text is not None and "'co2_flux'" in text and "running mean" in text
+    # a spreadsheet's mean that skips the blanks (min_periods=1) is named too
+    skip = pd.Series(nee).rolling(3, center=True, min_periods=1).mean().to_numpy().copy()
+    skip[np.isnan(nee)] = np.nan
+    assert smoothed_nee(skip, night) is not None
+
+
+def test_written_twice_and_few_nights_are_left_to_other_checks():
+    """Hourly values written into both half-hours give zero changes (named by the
+    written-twice check of round mistakes27), and too few night pairs say nothing."""
+    nee, night, _ = _nights()
+    twice = nee.copy()
+    twice[1::2] = twice[0::2]
+    assert smoothed_nee(twice, night) is None
+    smooth = pd.Series(nee).rolling(3, center=True, min_periods=3).mean().to_numpy()
+    short = slice(0, 48 * 5)
+    assert smoothed_nee(smooth[short], night[short]) is None
+
+
+def test_the_demo_is_quiet_and_its_three_record_mean_is_named():
+    """Known-truth recovery on the invented Quillmoor site (30 and 60 min): its NEE as
+    simulated is quiet; the same NEE as a three-record running mean (which moved the
+    example's nighttime GPP by -36.6, Reco by -41.5 and daytime GPP by -28.9 g C m-2
+    without a word) is a preflight warning, not fatal, naming the column."""
+    for minutes in (30, 60):
+        frame = demo.site_year(0, interval_minutes=minutes)[0]
+        night = frame["rg"].to_numpy(dtype=float) < 10.0
+        nee = frame["nee"].to_numpy(dtype=float)
+        clean = pd.DataFrame({"nee": nee}, index=frame.index)
+        assert not [f for f in _column_faults(clean, None, minutes, is_night=night)
+                    if f.stage == "input (nee smoothed)"]
+        smooth = pd.Series(nee).rolling(3, center=True, min_periods=3).mean().to_numpy()
+        screened = pd.DataFrame({"nee": smooth}, index=frame.index)
+        findings = [f for f in _column_faults(screened, None, minutes,
+                                              {"nee": "co2_exchange"}, is_night=night)
+                    if f.stage == "input (nee smoothed)"]
+        assert len(findings) == 1 and not findings[0].fatal
+        assert "'co2_exchange'" in findings[0].message
+
+
+def test_a_running_mean_from_july_is_named_with_its_month():
+    """Known-truth recovery on the invented Quillmoor site: NEE as a two-record running
+    mean from July only (which moved the example's daytime GPP by -20.6 g C m-2 without
+    a word) is diluted over the whole record; the part from July is named, with its
+    month. Without the stamps the diluted record says nothing."""
+    frame = demo.site_year(0)[0]
+    night = frame["rg"].to_numpy(dtype=float) < 10.0
+    nee = frame["nee"].to_numpy(dtype=float)
+    july = np.asarray(frame.index >= "2021-07-01")
+    mixed = nee.copy()
+    mixed[july] = pd.Series(nee).rolling(2, min_periods=2).mean().to_numpy()[july]
+    assert smoothed_nee(nee, night, None, frame.index) is None
+    text = smoothed_nee(mixed, night, {"nee": "co2_exchange"}, frame.index)
+    assert text is not None and "from 2021-07" in text and "'co2_exchange'" in text
+    assert smoothed_nee(mixed, night) is None
