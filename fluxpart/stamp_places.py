@@ -223,6 +223,46 @@ _GERMAN_PLACE = re.compile(
     r"\b(?:mittelungs|mess)?intervall(anfang|beginn|ende|mitte)\b"
     r"|\b(anfang|beginn|ende|mitte)\s+des\s+(?:mittelungs|mess)?(?:zeit)?"
     r"(?:intervall|zeitraum)e?s\b")
+#: Statements of the place in the languages of other networks' exports (French,
+#: Spanish, Italian: "Horodatage en fin de période", "inicio del intervalo", "fine del
+#: periodo di media"; common practice, since layouts27); not where a colon and a number
+#: follow ("fin de la période : 2021-12-31" dates the record)
+_ROMANCE_PLACE = re.compile(
+    r"(?:\b(début|debut|fin|milieu|centre)\s+(?:de\s+(?:la\s+|l')?|du\s+)"
+    r"(?:période|periode|intervalle)\b"
+    r"|\b(inicio|comienzo|principio|final|fin|mitad|medio)\s+del\s+(?:periodo|período|intervalo)\b"
+    r"|\b(inizio|fine|metà|meta)\s+del(?:l'\s*|\s+)(?:periodo|intervallo)\b)"
+    r"(?!\s*(?:de\s+\w+\s*)?[:=]\s*\d)")
+#: Averages over the interval after or before the stamp ("Values are averages over
+#: the following 30 minutes": the stamp starts the interval; "Mittelwerte der
+#: vorangegangenen 30 Minuten": it ends it) (common practice, since layouts27)
+_RELATIVE_PLACE = re.compile(
+    r"\b(?:averages?|averaged|means?|mean\s+values?|values?|totals?|sums?)\s+"
+    r"(?:over|of|for|across)\s+(?:the\s+)?"
+    r"(following|next|subsequent|preceding|previous)\s+"
+    r"(?:\d+|thirty|sixty|half\s+an?)?[\s-]*(?:min(?:ute)?s?|hours?|h)\b"
+    r"|\bmittelwerte?\s+(?:der|über\s+die)\s+(folgenden|nächsten|vorangegangenen|"
+    r"vorhergehenden|vorherigen|letzten)\s+(?:\d+\s*)?(?:min(?:uten)?|stunden?)\b")
+#: "Period-ending timestamps", "the period ending at the time shown" (since layouts27;
+#: "Calibration period ending 2021-05-01" states nothing: no word for the stamps or
+#: the time follows)
+_ENDING_AT = re.compile(
+    r"\b(?:period|interval)[\s-]+(beginning|starting|ending|begin|start|end)\s+"
+    r"(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?|labels?|times?)\b"
+    r"|\b(?:period|interval)\s+(beginning|starting|ending)\s+(?:at|with)\s+"
+    r"(?:the\s+|that\s+|this\s+|each\s+|its\s+)?"
+    r"(?:time\s*stamps?|timestamps?|stamps?|time|label)\b")
+_OTHER_PLACE_WORDS = {
+    "début": "start", "debut": "start", "inicio": "start", "comienzo": "start",
+    "principio": "start", "inizio": "start", "fin": "end", "final": "end", "fine": "end",
+    "milieu": "middle", "centre": "middle", "mitad": "middle", "medio": "middle",
+    "metà": "middle", "meta": "middle", "following": "start", "next": "start",
+    "subsequent": "start", "folgenden": "start", "nächsten": "start",
+    "preceding": "end", "previous": "end", "vorangegangenen": "end",
+    "vorhergehenden": "end", "vorherigen": "end", "letzten": "end",
+    "beginning": "start", "starting": "start", "begin": "start", "start": "start",
+    "ending": "end", "end": "end",
+}
 #: A place word within a few words after a word for the stamps, in one clause
 #: ("Timestamp at start of each 30-min average", "Time label: interval start")
 _STAMP_PLACE = re.compile(
@@ -238,14 +278,41 @@ _CELL_PLACE = re.compile(r"\b(?:interval|period|averaging|window)\s+"
 #: date written before a clock ("Exported 2021-06-01 12:00 UTC") is not one
 _STAMPS_CLOCK = re.compile(
     r"\b(?:time\s*stamps?|timestamps?|stamps?|date\s*/\s*time|date\s*time|datetime|"
-    r"local\s+time|all\s+data|all\s+times|times|zeitstempel)\b[^0-9.;]{0,15}?"
+    r"local\s+time|all\s+data|all\s+times|times|zeitstempel|horodatage)\b[^0-9.;]{0,15}?"
     r"(?<![a-z])(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+#: A key of the zone or offset, then its value. Besides English and German, the words
+#: for "time zone" of the languages of other tower networks' logger exports (French,
+#: Spanish, Italian, Portuguese, Dutch, Polish, Swedish, Norwegian; common practice,
+#: since layouts27: "Fuseau horaire : UTC" was read as local standard time); a unit in
+#: brackets after the key ("UTC offset (h): 2", "UTC offset [min]: 60") gives the unit of
+#: a bare number.
 _ZONE_KEY = re.compile(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt[\s_-]*offset"
-                       r"|offset\s+(?:from|to)\s+(?:utc|gmt))"
-                       r"(?:\s*\((?:h|hrs?|hours?)\))?"      # "UTC offset (h): 2"
-                       r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*([^,;]*)")
-_IN_UTC = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?)\b[^.;]{0,24}?"
-                     r"\bin\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+                       r"|offset\s+(?:from|to)\s+(?:utc|gmt)|fuseau\s+horaire"
+                       r"|zona\s+horaria|huso\s+horario|fuso\s+orario|fuso\s+hor[aá]rio"
+                       r"|tijd\s*s?zone|strefa\s+czasowa|tidszon|tidssone)"
+                       r"(?:\s*[\(\[](?P<unit>h|hrs?|hours?|min|mins|minutes?)[\)\]])?"
+                       r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*(?P<value>[^,;]*)")
+#: "Time offset: +1 h" (a key read only with a unit or a sign and "UTC": "time offset:
+#: 0.2" may be a sensor's lag)
+_TIME_OFFSET_KEY = re.compile(r"\btime[\s_-]*offset\s*[:=]\s*(?P<value>[^,;]*)")
+#: A number of hours, or of hours or minutes with its unit ("1", "+1 h", "60 min"), as
+#: written after an offset key
+_NUMBER_UNIT = re.compile(r"([+-]?\d{1,3}(?:\.\d+)?)\s*(h|hrs?|hours?|min|mins|minutes?)?")
+#: The whole value after a key being one clock: UTC, GMT, GPS time (which loggers
+#: synchronised by a GPS receiver keep: UTC plus the leap seconds since 1980, 18 s since
+#: 2017, IS-GPS-200 (m), within the reader's rounding to whole minutes) or the military
+#: and aviation letter Z ("Zulu") of UTC (ISO 8601 writes UTC as Z (m)), with an
+#: optional ISO 8601 offset
+_CLOCK_VALUE = re.compile(r"(?:utc|gmt|gps|z|zulu)(?:\s*time)?"
+                          r"(?:\s*\((?:utc|gmt|gps)\))?"
+                          r"(?P<offset>\s*[+-]\s*\d{1,2}(?::?\d{2})?)?")
+#: "Data logger time: UTC", "Time: UTC+00:00", "Standard time: UTC": a key ending in
+#: "time" followed by a clock and nothing else (since layouts27; a date or anything else
+#: after the key states nothing: "Export time: 2021-06-01 12:00 UTC")
+_TIME_KEY = re.compile(r"\btime\s*[\]\)]?\s*[:=]\s*\(?\s*(?P<value>[^,;]*)")
+_IN_UTC = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|zeitangaben"
+                     r"|zeiten|uhrzeiten|horodatage|heures?)\b[^.;]{0,24}?"
+                     r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
 #: "Time reference: UTC", "Timebase: UTC", "Time standard = GMT" (a clock or zone follows;
 #: bare numbers are not read, since "time base: 10" may be a sampling rate)
 _REFERENCE_KEY = re.compile(r"(?:\btime[\s_-]*(?:reference|base|standard)|\btimebase"
@@ -281,6 +348,7 @@ _SPELLED_ZONES = (
     ("korea standard time", 9.0), ("china standard time", 8.0),
     ("india standard time", 5.5), ("indian standard time", 5.5),
     ("new zealand standard time", 12.0), ("south africa standard time", 2.0),
+    ("zulu time", 0.0),
 )
 _SPELLED = re.compile(r"(?<![a-z])(" + "|".join(re.escape(p) for p, _ in _SPELLED_ZONES)
                       + r")(?![a-z])")
@@ -325,6 +393,10 @@ def stated_place(text: str, cell: bool = False) -> str | None:
     found |= {places[m.group(1) or m.group(2)] for m in _GERMAN_PLACE.finditer(lowered)}
     for stamp in _STAMP_PLACE.finditer(lowered):          # "Timestamp at start of ..."
         found.add(places.get(stamp.group(1), stamp.group(1)))
+    for pattern in (_ROMANCE_PLACE, _RELATIVE_PLACE, _ENDING_AT):   # since layouts27
+        for m in pattern.finditer(lowered):
+            word = next(group for group in m.groups() if group)
+            found.add(_OTHER_PLACE_WORDS[word])
     if cell:                                              # a units cell "interval begin"
         for m in _CELL_PLACE.finditer(spaced):
             word = m.group(1) or m.group(2) or m.group(3)
@@ -395,7 +467,8 @@ def stated_offset(text: str) -> float | None:
     ----------
     ISO 8601-1:2019 (offsets from UTC as ``±hh``, ``±hhmm``, ``±hh:mm``) (m).
     """
-    original = text.replace("\u2212", "-").strip().strip('"').strip()
+    # quotes aside: a spreadsheet's key and value cells '"Timezone","UTC"' (layouts27)
+    original = text.replace("\u2212", "-").replace('"', "").strip()
     lowered = original.lower()
     key = _CLOCK_KEY.search(lowered) or _REFERENCE_KEY.search(lowered)
     if key and not _ZONE_KEY.search(lowered):
@@ -404,22 +477,34 @@ def stated_offset(text: str) -> float | None:
         offset = column_utc_offset(value)
         if offset is None and len(lowered) == len(original):
             offset = zone_offset(original[key.start(1):key.end(1)])
+        if offset is None:
+            offset = _clock_value(value)              # "Logger clock: GPS" (layouts27)
         return offset if offset is not None else spelled_zone_offset(value)
     key = _ZONE_KEY.search(lowered)
     if key:
-        value = key.group(1).strip().strip('"\'').strip()
+        value = key.group("value").strip().strip('"\'').strip()
         bare = _BARE_OFFSET.match(value.replace(" ", ""))
-        if bare:
+        if bare and not key.group("unit"):    # "[min]: -330" is minutes, not -03:30
             sign, hours, minutes = bare.groups()
             offset = int(hours) + int(minutes or 0) / 60
             return -offset if sign == "-" else float(offset)
-        hours = re.fullmatch(r"[+-]?\d{1,2}(?:\.\d+)?", value.replace(" ", ""))
-        if hours and abs(float(hours.group(0))) <= 14:      # "UTC offset: 1" (hours)
-            return float(hours.group(0))
+        number = _number_offset(value, key.group("unit"))   # "1", "+1 h", "[min]: 60"
+        if number is not None:
+            return number
         offset = column_utc_offset(value)
         if offset is None and len(lowered) == len(original):   # "Time zone: EET"
-            offset = zone_offset(original[key.start(1):key.end(1)])
+            offset = zone_offset(original[key.start("value"):key.end("value")])
+        if offset is None:
+            offset = _clock_value(value)              # "Time zone = Z" (layouts27)
         return offset if offset is not None else spelled_zone_offset(value)
+    key = _TIME_OFFSET_KEY.search(lowered)
+    if key:                                           # "Time offset: +1 h" (layouts27)
+        value = key.group("value").strip()
+        offset = _clock_value(value)
+        if offset is None and re.search(r"[+-]|\d\s*(?:h|min)", value):
+            offset = _number_offset(value, None, unit_needed=True)
+        if offset is not None:
+            return offset
     inside = _IN_UTC.search(lowered)
     if inside:
         return column_utc_offset(inside.group(1) + (inside.group(2) or "").replace(" ", ""))
@@ -427,6 +512,10 @@ def stated_offset(text: str) -> float | None:
              for m in _STAMPS_CLOCK.finditer(lowered)}
     if len(found) == 1 and "synchroni" not in lowered:   # not "clock synchronised to UTC"
         return found.pop()
+    for key in _TIME_KEY.finditer(lowered):       # "Data logger time: UTC" (layouts27)
+        offset = _clock_value(key.group("value").strip())
+        if offset is not None:
+            return offset
     spelled = spelled_zone_offset(lowered)        # "All times in Coordinated Universal Time"
     if spelled is not None and _ABOUT_STAMPS.search(_SPELLED.sub(" ", lowered)):
         return spelled                            # not a title that names a zone in passing
@@ -438,6 +527,38 @@ def stated_offset(text: str) -> float | None:
     if offset is None and re.fullmatch(r"\(?[A-Z]{3,4}\)?", original):    # a line "EET"
         offset = zone_offset(original)
     return offset
+
+
+def _clock_value(value: str) -> float | None:
+    """The offset [h] of a value that is one clock and nothing else ("UTC", "GPS",
+    "Z", "UTC+00:00", "GPS time"), or None (see :data:`_CLOCK_VALUE`)."""
+    match = _CLOCK_VALUE.fullmatch(value.strip().rstrip("."))
+    if match is None:
+        return None
+    written = (match.group("offset") or "").replace(" ", "")
+    if not written:
+        return 0.0
+    sign, hours, minutes = _BARE_OFFSET.match(written).groups()
+    offset = int(hours) + int(minutes or 0) / 60
+    return -offset if sign == "-" else float(offset)
+
+
+def _number_offset(value: str, unit: str | None, unit_needed: bool = False) -> float | None:
+    """The offset [h] of a number of hours or minutes after an offset key, or None.
+
+    ``unit`` is a unit written in brackets after the key; else a unit after the number
+    counts ("+1 h", "60 min"), else hours (unless ``unit_needed``). An offset beyond
+    14 h, more than any zone keeps (UTC+14, Line Islands, IANA tz (m)), is no offset.
+    """
+    match = _NUMBER_UNIT.fullmatch(value.strip())
+    if match is None:
+        return None
+    number, written = match.groups()
+    unit = unit or written
+    if unit is None and unit_needed:
+        return None
+    hours = float(number) / 60 if unit and unit.startswith("min") else float(number)
+    return hours if abs(hours) <= 14 else None
 
 
 def text_conflict_message(statements: list, time_marks: str, time_format: str,
