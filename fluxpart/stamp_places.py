@@ -27,6 +27,7 @@ minutes, each labelled with one time stamp) (m).
 from __future__ import annotations
 
 import re
+import unicodedata
 from datetime import datetime
 
 import numpy as np
@@ -43,10 +44,13 @@ __all__ = ["ZONE_ABBREVIATIONS", "column_place", "column_utc_offset", "half_inte
 #: with the German words loggers of German-speaking networks write; common practice).
 _PLACE_WORDS = {
     "start": {"start", "starts", "starting", "begin", "begins", "beginning", "anfang",
-              "beginn"},
-    "middle": {"mid", "middle", "midpoint", "centre", "center", "mitte"},
-    "end": {"end", "ends", "ending", "stop", "finish", "ende"},
+              "beginn", "debut", "inicio", "comienzo", "inizio"},
+    "middle": {"mid", "middle", "midpoint", "centre", "center", "mitte", "milieu", "medio",
+               "mitad"},
+    "end": {"end", "ends", "ending", "stop", "finish", "ende", "fin", "final"},
 }
+#: (French, Spanish and Italian words since layouts27: "horodatage_debut",
+#: "fecha_hora_final"; a column's accents are read without them, "début" as "debut")
 #: Words a place word is written together with in one token ("endtime", "timestart")
 _TIME_WORDS = ("timestamp", "datetime", "stamp", "time", "date", "ts")
 #: (not the zone names "Etc/GMT-1", whose POSIX sign is the other way round: UTC+1)
@@ -55,7 +59,9 @@ _UTC = re.compile(r"(?<![a-z])(?<!etc/)(utc|gmt)(?:([+-])(\d{1,2})(?::?(\d{2}))?
 
 def _tokens(name: str) -> list[str]:
     """Lower-case words of a column name, split at case changes, digits and punctuation."""
-    spaced = re.sub(r"([A-Z]+)([A-Z][a-z])", r"\1 \2", name)
+    plain = "".join(ch for ch in unicodedata.normalize("NFKD", name)
+                    if not unicodedata.combining(ch))          # "début" -> "debut"
+    spaced = re.sub(r"([A-Z]+)([A-Z][a-z])", r"\1 \2", plain)
     spaced = re.sub(r"([a-z])([A-Z])", r"\1 \2", spaced)
     return re.findall(r"[a-z]+|\d+", spaced.lower())
 
@@ -628,7 +634,7 @@ def _zone_setting_conflict(offset: float, time_zone: str, utc_offset: float,
         [input] time_zone, a time-zone database name.
     utc_offset : float
         [site] utc_offset [h].
-    what : {"line", "name"}
+    what : {"line", "name", "format"}
         What states the offset (for the fix).
 
     Returns
@@ -663,17 +669,64 @@ def _zone_setting_conflict(offset: float, time_zone: str, utc_offset: float,
         fix = 'set time_zone = "UTC"'
     else:
         fix = f"set time_zone to a zone of {_hours(offset)}"
-    source = "that line" if what == "line" else "the column's name"
+    source = {"line": "that line", "name": "the column's name"}.get(
+        what, "time_format's text")
     return (f"[input] time_zone = {setting_text(time_zone)} reads them in "
             f"{' and '.join(_hours(hours) for hours in held)}: the two readings place every "
             f"record {apart} hour(s) apart; {fix} if the file is right, or correct "
             f"{source} in a copy of the file if the setting is")
 
 
+def format_clock(time_format: str) -> tuple[str, float] | None:
+    """(text, offset [h]) where a strptime format writes a clock as literal text
+    (``"%Y-%m-%d %H:%M UTC"``, ``"%d.%m.%Y %H:%M MEZ"``, ``"%Y-%m-%dT%H:%M+00:00"``),
+    else None.
+
+    Such text matches the stamps' clock label and drops it, so the stamps are read as
+    local standard time although the format itself says they are not; it is judged as
+    the time column's name is (since layouts27; before, UTC stamps were read an hour
+    off at a UTC+1 site without a word).
+
+    References
+    ----------
+    Python documentation, ``datetime.strptime``: characters other than directives match
+    themselves (m). ISO 8601-1:2019 (offsets as ``±hh:mm``, ``±hhmm``) (m).
+    """
+    if _labelled(time_format):
+        return None
+    literal = re.sub(r"%.", " ", time_format)
+    offset = column_utc_offset(literal)
+    if offset is None:
+        offset = zone_offset(literal)
+    if offset is not None:
+        words = [w for w in literal.split() if re.search(r"[A-Za-z]{2}", w)]
+        return (words[-1] if words else literal.strip()), offset
+    written = re.search(r"(?<![\d%])([+-])(\d{2}):?(\d{2})\s*$", time_format)
+    if written and "%" not in time_format[written.start():]:
+        sign, hours, minutes = written.groups()
+        offset = int(hours) + int(minutes) / 60
+        return written.group(0).strip(), -offset if sign == "-" else float(offset)
+    return None
+
+
 def _labelled(time_format: str) -> bool:
     """True where the format reads each stamp's own UTC offset or zone label."""
     return (time_format == "ISO8601" or "%z" in time_format or "%Z" in time_format
-            or time_format.rstrip().endswith("Z"))
+            or ends_in_utc_z(time_format))
+
+
+def ends_in_utc_z(time_format: str) -> bool:
+    """True where a strptime format ends in the literal Z of UTC ("%Y-%m-%dT%H:%M:%SZ"):
+    after a directive or a character that is no letter, not the last letter of a word
+    ("%d.%m.%Y %H:%M MEZ" ends in the German label of Central European Time, UTC+1;
+    read as the Z of UTC before layouts27, every record moved an hour).
+
+    References
+    ----------
+    ISO 8601-1:2019: "Z" after a time of day marks UTC (m). Einheiten- und Zeitgesetz
+    § 4: MEZ, OEZ, WEZ and their summer times MESZ, OESZ, WESZ (m).
+    """
+    return re.search(r"(?:%[A-Za-z]|[^A-Za-z%]|^)Z$", time_format.rstrip()) is not None
 
 
 def _read_as(utc_offset: float, offset: float) -> str:
@@ -725,6 +778,19 @@ def name_conflict_message(time_columns: tuple, time_marks: str, time_format: str
                     "copy of the file if the setting is")
     if _labelled(time_format) or utc_offset is None:
         return None
+    written = format_clock(time_format)
+    if written is not None:                       # "%Y-%m-%d %H:%M UTC" (layouts27)
+        text, offset = written
+        said = (f"[input] time_format {setting_text(time_format)} reads {text!r} as text, "
+                f"which states stamps in {_hours(offset)}")
+        if time_zone is not None:
+            against = _zone_setting_conflict(offset, time_zone, utc_offset, "format")
+            if against:
+                return f"{said}, but {against}"
+        elif not np.isclose(offset, utc_offset):
+            return (f"{said}, but without [input] time_zone {_read_as(utc_offset, offset)}"
+                    " if the stamps are in that clock, or remove the text from time_format "
+                    "if they are in local standard time")
     for column in time_columns:
         offset = column_utc_offset(column)
         if offset is None:                        # "Zeit (MEZ)", "time_EET"

@@ -32,6 +32,7 @@ from .errors import (
 from .stamp_places import (
     column_utc_offset,
     date_only_repeats_hint,
+    ends_in_utc_z,
     repeated_stamp_hint,
     zone_offset,
 )
@@ -1061,7 +1062,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         # (m); pandas reads only upper case
         text = (text.str.replace(r"(?<=\d)t(?=\d)", "T", regex=True)
                 .str.replace(r"(?<=\d)z$", "Z", regex=True))
-    if time_format.endswith("Z") and not time_format.endswith("%Z") and time_zone is None:
+    if ends_in_utc_z(time_format) and time_zone is None:
         time_format = time_format[:-1] + "%z"       # "...%SZ": the Z of UTC, not a letter
     with_offset = _carries_offset(text, time_format)
     if with_offset and time_zone in _UTC_NAMES:

@@ -21,10 +21,10 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart.errors import TimestampError
+from fluxpart.errors import ConfigError, TimestampError
 from fluxpart.io import read_table
 from fluxpart.site import Site
-from fluxpart.stamp_places import stated_offset, stated_place
+from fluxpart.stamp_places import column_place, format_clock, stated_offset, stated_place
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
 MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
@@ -259,3 +259,92 @@ def test_a_clock_after_the_stamps_is_not_offered_as_text(tmp_path):
     with pytest.raises(TimestampError) as caught:
         _read(path)
     assert "reads every stamp" not in str(caught.value)
+
+
+# --------------------------------------------- a place or a clock in other settings' text
+@pytest.mark.parametrize(("column", "place"), [
+    ("horodatage_début", "start"), ("fecha_hora_inicio", "start"),
+    ("ora_inizio", "start"), ("horodatage_fin", "end"), ("fecha_hora_final", "end"),
+    ("TIMESTAMP_END", "end"), ("Zeit", None),
+])
+def test_time_column_named_for_its_place_in_other_languages(column, place):
+    """début/inicio/inizio mean start, fin/final mean end (any dictionary); a column's
+    accents are read without them (Unicode NFKD decomposition (m))."""
+    assert column_place(column) == place
+
+
+def test_start_stamps_in_a_column_named_in_spanish_against_end_are_refused(tmp_path):
+    """Start stamps in a column "fecha_hora_inicio" read with time_marks = "end":
+    before layouts27 every record sat an interval early without a word."""
+    ends, values = _records()
+    path = tmp_path / "mast.csv"
+    starts = ends - pd.Timedelta(minutes=30)
+    _write(path, [f"{s:%Y-%m-%d %H:%M}" for s in starts], values, head="fecha_hora_inicio")
+    with pytest.raises(ConfigError) as caught:
+        _read(path, time_column="fecha_hora_inicio")
+    assert 'set time_marks = "start"' in str(caught.value)
+    frame, _ = _read(path, time_column="fecha_hora_inicio", time_marks="start")
+    pd.testing.assert_index_equal(frame.index, pd.DatetimeIndex(starts, name="time"))
+
+
+@pytest.mark.parametrize(("time_format", "expected"), [
+    ("%Y-%m-%d %H:%M UTC", ("UTC", 0.0)), ("%Y-%m-%d %H:%M GMT", ("GMT", 0.0)),
+    ("%Y-%m-%dT%H:%M+00:00", ("+00:00", 0.0)), ("%d.%m.%Y %H:%M MEZ", ("MEZ", 1.0)),
+    ("%d.%m.%Y %H:%M OEZ", ("OEZ", 2.0)),
+    ("%Y-%m-%d %H:%M", None), ("%Y-%m-%dT%H:%M:%SZ", None), ("%Y-%m-%d %H:%M %Z", None),
+])
+def test_clock_written_as_text_in_the_format(time_format, expected):
+    """UTC and GMT are offset 0, +00:00 is ISO 8601's UTC (m); MEZ is UTC+1, OEZ UTC+2
+    (Einheiten- und Zeitgesetz § 4 (m)); a format that reads the label (%Z) or ends in
+    the Z of UTC states no text clock."""
+    assert format_clock(time_format) == expected
+
+
+@pytest.mark.parametrize(("time_format", "suffix"), [
+    ("%Y-%m-%d %H:%M UTC", " UTC"), ("%Y-%m-%dT%H:%M+00:00", "+00:00")])
+def test_utc_stamps_read_with_the_clock_as_text_are_refused(tmp_path, time_format, suffix):
+    """UTC stamps "2021-06-01 00:30 UTC" read with the format "%Y-%m-%d %H:%M UTC": the
+    text matched and was dropped, and every record sat an hour off at a UTC+1 site
+    without a word; now refused naming both readings, and time_zone = "UTC" reads them
+    (known truth)."""
+    ends, values = _records()
+    path = tmp_path / "mast.csv"
+    stamps = [f"{e - pd.Timedelta(hours=1):%Y-%m-%d %H:%M}" for e in ends]
+    if "%dT" in time_format:
+        stamps = [s.replace(" ", "T") for s in stamps]
+    _write(path, [s + suffix for s in stamps], values)
+    with pytest.raises(ConfigError) as caught:
+        _read(path, time_format=time_format)
+    message = str(caught.value)
+    assert "states stamps in UTC" in message and 'set time_zone = "UTC"' in message
+    frame, _ = _read(path, time_format=time_format, time_zone="UTC")
+    pd.testing.assert_index_equal(frame.index,
+                                  pd.DatetimeIndex(ends - pd.Timedelta(minutes=30),
+                                                   name="time"))
+
+
+def test_format_ending_in_mez_reads_local_standard_time(tmp_path):
+    """"%d.%m.%Y %H:%M MEZ" over stamps labelled MEZ (Central European Time, UTC+1,
+    the site's local standard time (m)): before layouts27 the last letter was taken for
+    the Z of UTC and every record moved an hour later without a word; now read as
+    written (known truth)."""
+    ends, values = _records()
+    path = tmp_path / "mast.csv"
+    _write(path, [f"{e:%d.%m.%Y %H:%M} MEZ" for e in ends], values)
+    frame, _ = _read(path, time_format="%d.%m.%Y %H:%M MEZ")
+    pd.testing.assert_index_equal(frame.index,
+                                  pd.DatetimeIndex(ends - pd.Timedelta(minutes=30),
+                                                   name="time"))
+    assert np.allclose(frame["rg"].to_numpy(), values[:, 2])
+
+
+def test_format_ending_in_the_z_of_utc_reads_as_before(tmp_path):
+    """"%Y-%m-%dT%H:%MZ" over UTC stamps: the Z of UTC (ISO 8601 (m)), converted to the
+    site's UTC+1 as before (known truth, kept behaviour)."""
+    ends, values = _records()
+    path = tmp_path / "mast.csv"
+    _write(path, [f"{e - pd.Timedelta(hours=1):%Y-%m-%dT%H:%M}Z" for e in ends], values)
+    frame, _ = _read(path, time_format="%Y-%m-%dT%H:%MZ")
+    pd.testing.assert_index_equal(frame.index,
+                                  pd.DatetimeIndex(ends - pd.Timedelta(minutes=30),
+                                                   name="time"))
