@@ -37,7 +37,8 @@ from .config import setting_text
 
 __all__ = ["ZONE_ABBREVIATIONS", "column_place", "column_utc_offset", "half_interval_message",
            "date_only_repeats_hint", "name_conflict_message", "paired_stamps_message",
-           "parse_like", "repeated_stamp_hint", "spelled_zone_offset", "stated_offset", "stated_place",
+           "ends_in_utc_z", "format_clock", "parse_like", "repeated_stamp_hint",
+           "spelled_zone_offset", "stated_civil", "stated_offset", "stated_place",
            "text_conflict_message", "zone_offset"]
 
 #: Words of a time column's name that say where its stamps sit in the interval (English,
@@ -567,6 +568,46 @@ def _number_offset(value: str, unit: str | None, unit_needed: bool = False) -> f
     return hours if abs(hours) <= 14 else None
 
 
+#: Words for daylight saving time (English, German, French, Spanish, Italian; common
+#: practice) followed by an answer that it is kept, or preceded by "with"
+_SUMMER_WORDS = (r"(?:daylight[\s-]*sav(?:ing|ings)?(?:[\s-]*time)?|\bdst\b|sommerzeit"
+                 r"|summer[\s-]*time|heure\s+d'été|horario\s+de\s+verano|ora\s+legale)")
+_SUMMER_KEPT = re.compile(
+    _SUMMER_WORDS + r"\s*[\]\)]?\s*[:=]\s*\(?\s*(?:yes|on|ja|true|1|oui|sí|si|enabled|"
+    r"active|aktiv|applied|used)\b"
+    r"|\bwith\s+" + _SUMMER_WORDS + r"|\bmit\s+sommerzeit")
+
+
+def stated_civil(text: str) -> bool:
+    """True where a line states stamps in civil time with daylight saving.
+
+    Parameters
+    ----------
+    text : str
+        A line above the header, e.g. ``"Daylight saving time: on"``, ``"Sommerzeit:
+        ja"``, ``"Local time (CET/CEST)"`` (a zone's standard and summer labels side by
+        side, one hour apart).
+
+    Returns
+    -------
+    bool
+
+    References
+    ----------
+    IANA time zone database (abbreviations and offsets of the standard and summer
+    times) (m); daylight saving time advances clocks by one hour (m). Since layouts27.
+    """
+    lowered = text.lower()
+    if _SUMMER_KEPT.search(lowered):
+        return True
+    for match in re.finditer(r"(?<![A-Za-z])([A-Z]{3,4})\s*/\s*([A-Z]{3,4})(?![A-Za-z])",
+                             text):
+        one, other = (ZONE_ABBREVIATIONS.get(match.group(i)) for i in (1, 2))
+        if one is not None and other is not None and np.isclose(abs(one - other), 1.0):
+            return True
+    return False
+
+
 def text_conflict_message(statements: list, time_marks: str, time_format: str,
                           time_zone: str | None, utc_offset: float | None) -> str | None:
     """The refusal where a line of the file states another place or clock than the settings.
@@ -618,6 +659,16 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
                     f"but without [input] time_zone {_read_as(utc_offset, offset)} if the "
                     "file is right, or correct that line in a copy of the file if the "
                     "stamps are in local standard time")
+    if time_zone is None:
+        for where, text in statements:
+            if not where.startswith("the cell under") and stated_civil(text):
+                return (f"{where} ({text.strip()[:80]!r}) states stamps in civil time with "
+                        "daylight saving, but without [input] time_zone they are read as the "
+                        f"site's local standard time ({_hours(utc_offset)}, [site] utc_offset"
+                        f" = {utc_offset:g}) all year: the two readings place the summer "
+                        "records an hour apart; set time_zone to the site's zone "
+                        "(\"Area/City\") if the file is right, or correct that line in a copy "
+                        "of the file if the stamps are in local standard time")
     return None
 
 
@@ -678,10 +729,22 @@ def _zone_setting_conflict(offset: float, time_zone: str, utc_offset: float,
 
 
 def format_clock(time_format: str) -> tuple[str, float] | None:
-    """(text, offset [h]) where a strptime format writes a clock as literal text
-    (``"%Y-%m-%d %H:%M UTC"``, ``"%d.%m.%Y %H:%M MEZ"``, ``"%Y-%m-%dT%H:%M+00:00"``),
-    else None.
+    """The clock a strptime format writes as literal text.
 
+    Parameters
+    ----------
+    time_format : str
+        ``[input] time_format``, e.g. ``"%Y-%m-%d %H:%M UTC"``, ``"%d.%m.%Y %H:%M MEZ"``,
+        ``"%Y-%m-%dT%H:%M+00:00"``.
+
+    Returns
+    -------
+    tuple of (str, float) or None
+        The text and its offset [h]; None where the format writes no clock as text or
+        reads the stamps' own (``%z``, ``%Z``, the Z of UTC, ``"ISO8601"``).
+
+    Notes
+    -----
     Such text matches the stamps' clock label and drops it, so the stamps are read as
     local standard time although the format itself says they are not; it is judged as
     the time column's name is (since layouts27; before, UTC stamps were read an hour
@@ -720,6 +783,15 @@ def ends_in_utc_z(time_format: str) -> bool:
     after a directive or a character that is no letter, not the last letter of a word
     ("%d.%m.%Y %H:%M MEZ" ends in the German label of Central European Time, UTC+1;
     read as the Z of UTC before layouts27, every record moved an hour).
+
+    Parameters
+    ----------
+    time_format : str
+        ``[input] time_format``.
+
+    Returns
+    -------
+    bool
 
     References
     ----------
