@@ -247,7 +247,7 @@ _RELATIVE_PLACE = re.compile(
     r"\b(?:averages?|averaged|means?|mean\s+values?|values?|totals?|sums?)\s+"
     r"(?:over|of|for|across)\s+(?:the\s+)?"
     r"(following|next|subsequent|preceding|previous)\s+"
-    r"(?:\d+|thirty|sixty|half\s+an?)?[\s-]*(?:min(?:ute)?s?|hours?|h)\b"
+    r"(?:\d+|thirty|sixty|half(?:\s+an?)?)?[\s-]*(?:min(?:ute)?s?|hours?|h)\b"
     r"|\bmittelwerte?\s+(?:der|über\s+die)\s+(folgenden|nächsten|vorangegangenen|"
     r"vorhergehenden|vorherigen|letzten)\s+(?:\d+\s*)?(?:min(?:uten)?|stunden?)\b")
 #: "Period-ending timestamps", "the period ending at the time shown" (since layouts27;
@@ -258,7 +258,13 @@ _ENDING_AT = re.compile(
     r"(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?|labels?|times?)\b"
     r"|\b(?:period|interval)\s+(beginning|starting|ending)\s+(?:at|with)\s+"
     r"(?:the\s+|that\s+|this\s+|each\s+|its\s+)?"
-    r"(?:time\s*stamps?|timestamps?|stamps?|time|label)\b")
+    r"(?:time\s*stamps?|timestamps?|stamps?|time|label)\b"
+    # the "hour ending" convention ("Half-hour ending", "interval-ending"), with no date
+    # after it ("hour ending 2021-06-01 13:00" names one record)
+    r"|\b(?:half[\s-]*)?hour[\s-]+(ending|beginning|starting)\b(?![^;]*\d{4})"
+    r"|\b(?:interval|period)-(ending|beginning|starting)\b(?![^;]*\d{4})"
+    r"|\b(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?)\b[^.;]{0,30}?"
+    r"\b(mid)[\s-]*(?:interval|period)\b")
 _OTHER_PLACE_WORDS = {
     "début": "start", "debut": "start", "inicio": "start", "comienzo": "start",
     "principio": "start", "inizio": "start", "fin": "end", "final": "end", "fine": "end",
@@ -268,13 +274,14 @@ _OTHER_PLACE_WORDS = {
     "preceding": "end", "previous": "end", "vorangegangenen": "end",
     "vorhergehenden": "end", "vorherigen": "end", "letzten": "end",
     "beginning": "start", "starting": "start", "begin": "start", "start": "start",
-    "ending": "end", "end": "end",
+    "ending": "end", "end": "end", "mid": "middle",
 }
 #: A place word within a few words after a word for the stamps, in one clause
 #: ("Timestamp at start of each 30-min average", "Time label: interval start")
 _STAMP_PLACE = re.compile(
     r"\b(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?|zeitstempel)\b[^.;]{0,30}?"
-    r"(?<![a-z])(start|beginning|begin|end|middle|centre|center|midpoint)(?![a-z])")
+    r"(?<![a-z])(start|beginning|begin|end|middle|centre|center|midpoint|anfang|beginn|ende"
+    r"|mitte)(?![a-z])")
 #: "interval begin", "period end" in a cell under the time column's name
 _CELL_PLACE = re.compile(r"\b(?:interval|period|averaging|window)\s+"
                          r"(start|beginning|begin|end|middle|centre|center|midpoint)\b"
@@ -297,6 +304,7 @@ _ZONE_KEY = re.compile(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt
                        r"|offset\s+(?:from|to)\s+(?:utc|gmt)|fuseau\s+horaire"
                        r"|zona\s+horaria|huso\s+horario|fuso\s+orario|fuso\s+hor[aá]rio"
                        r"|tijd\s*s?zone|strefa\s+czasowa|tidszon|tidssone)"
+                       r"(?:\s*[\(\[](?:utc|gmt)[\s_-]*offset[\)\]])?"   # "Time zone (UTC offset)"
                        r"(?:\s*[\(\[](?P<unit>h|hrs?|hours?|min|mins|minutes?)[\)\]])?"
                        r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*(?P<value>[^,;]*)")
 #: "Time offset: +1 h" (a key read only with a unit or a sign and "UTC": "time offset:
@@ -308,9 +316,9 @@ _NUMBER_UNIT = re.compile(r"([+-]?\d{1,3}(?:\.\d+)?)\s*(h|hrs?|hours?|min|mins|m
 #: The whole value after a key being one clock: UTC, GMT, GPS time (which loggers
 #: synchronised by a GPS receiver keep: UTC plus the leap seconds since 1980, 18 s since
 #: 2017, IS-GPS-200 (m), within the reader's rounding to whole minutes) or the military
-#: and aviation letter Z ("Zulu") of UTC (ISO 8601 writes UTC as Z (m)), with an
-#: optional ISO 8601 offset
-_CLOCK_VALUE = re.compile(r"(?:utc|gmt|gps|z|zulu)(?:\s*time)?"
+#: and aviation letter Z ("Zulu") of UTC (ISO 8601 writes UTC as Z (m)), or Universal
+#: Time (UT, French TU), within a second of UTC (m), with an optional ISO 8601 offset
+_CLOCK_VALUE = re.compile(r"(?:utc|gmt|gps|z|zulu|ut|tu|universal)(?:\s*time)?"
                           r"(?:\s*\((?:utc|gmt|gps)\))?"
                           r"(?P<offset>\s*[+-]\s*\d{1,2}(?::?\d{2})?)?")
 #: "Data logger time: UTC", "Time: UTC+00:00", "Standard time: UTC": a key ending in

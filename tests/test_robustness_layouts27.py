@@ -79,6 +79,8 @@ UTC_LINES = [
     "Time: UTC+00:00", "Data logger time: UTC", "Standard time: UTC",
     '"Timezone","UTC"',                                 # a sheet's key and value cells
     "Horodatage : UTC", "Zeitangaben in UTC",
+    "Time zone: UT", "Time zone: Universal Time",       # UT within a second of UTC (m)
+    "Time zone (UTC offset): 0",
 ]
 
 
@@ -94,6 +96,7 @@ def test_utc_stated_in_other_words_is_read(line):
     ("UTC offset (minutes): -330", -5.5),
     ("Fuseau horaire : UTC+1", 1.0), ("Zona horaria: Europe/Madrid", 1.0),
     ("Time offset: +1 h", 1.0), ("Logger clock: GPS time", 0.0),
+    ("Time zone (UTC offset): +1", 1.0),   # read as UTC (0) before: a false refusal
     # nothing stated, as before
     ("Time offset: 0.2", None),                    # a lag, not a clock
     ("Time offset: 2", None),
@@ -156,7 +159,13 @@ def test_local_standard_file_stated_in_other_words_reads(tmp_path):
     ("Marca temporale: fine del periodo di media", "end"),
     ("Marca de tiempo al final del intervalo", "end"),
     ("Mittelwerte der vorangegangenen 30 Minuten", "end"),
+    # the "hour ending" convention and German words after a word for the stamps
+    ("Half-hour ending", "end"), ("Values are hour-ending", "end"),
+    ("Stamps are interval-ending", "end"), ("Hour beginning", "start"),
+    ("Timestamp at mid-interval", "middle"), ("Zeitstempel: Ende", "end"),
+    ("Data averaged over the previous half hour", "end"),
     # nothing stated, as before: a date after the key, a period named in passing
+    ("Hour ending 2021-06-01 13:00 missing", None),
     ("Fin de la période : 2021-12-31", None),
     ("Calibration period ending 2021-05-01", None),
     ("Data of the previous 30 minutes lost", None),
@@ -391,3 +400,16 @@ def test_civil_time_stated_above_the_header_without_time_zone_is_refused(tmp_pat
     pd.testing.assert_index_equal(frame.index,
                                   pd.DatetimeIndex(ends - pd.Timedelta(minutes=30),
                                                    name="time"))
+
+
+def test_zone_key_with_utc_offset_in_brackets_reads_its_offset(tmp_path):
+    """"Time zone (UTC offset): +1" over stamps in the site's local standard time
+    (UTC+1): before layouts27 the bracket's "UTC" was read as the clock, and a right file
+    was refused as UTC; now the offset after the colon is read, and the records read as
+    written (ISO 8601 offset +1 (m); known truth)."""
+    ends, values = _records()
+    path = tmp_path / "mast.csv"
+    _write(path, [f"{e:%Y-%m-%d %H:%M}" for e in ends], values,
+           above=["Time zone (UTC offset): +1"])
+    frame, _ = _read(path, rows_before_header=1)
+    assert np.allclose(frame["rg"].to_numpy(), values[:, 2])
