@@ -529,6 +529,10 @@ def stated_offset(text: str) -> float | None:
         return found.pop()
     for key in _TIME_KEY.finditer(lowered):       # "Data logger time: UTC" (layouts27)
         offset = _clock_value(key.group("value").strip())
+        written = original[key.start("value"):key.end("value")].strip()
+        if offset is None and len(lowered) == len(original) and (
+                re.fullmatch(r"\(?[A-Z]{3,4}\)?", written) or _AREA_CITY.fullmatch(written)):
+            offset = zone_offset(written)         # "Logger time: CET", "Time: Europe/Helsinki"
         if offset is not None:
             return offset
     spelled = spelled_zone_offset(lowered)        # "All times in Coordinated Universal Time"

@@ -97,6 +97,10 @@ def test_utc_stated_in_other_words_is_read(line):
     ("Fuseau horaire : UTC+1", 1.0), ("Zona horaria: Europe/Madrid", 1.0),
     ("Time offset: +1 h", 1.0), ("Logger clock: GPS time", 0.0),
     ("Time zone (UTC offset): +1", 1.0),   # read as UTC (0) before: a false refusal
+    # a zone label or name after a key ending in "time" (IANA tz: CET UTC+1, EET and
+    # Helsinki's standard time UTC+2 (m))
+    ("Logger time: CET", 1.0), ("Local time: EET", 2.0), ("Time: Europe/Helsinki", 2.0),
+    ("Time: END", None),
     # nothing stated, as before
     ("Time offset: 0.2", None),                    # a lag, not a clock
     ("Time offset: 2", None),
