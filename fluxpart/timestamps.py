@@ -1062,7 +1062,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         # (m); pandas reads only upper case
         text = (text.str.replace(r"(?<=\d)t(?=\d)", "T", regex=True)
                 .str.replace(r"(?<=\d)z$", "Z", regex=True))
-    if ends_in_utc_z(time_format) and time_zone is None:
+    if time_format.endswith("Z") and ends_in_utc_z(time_format) and time_zone is None:
         time_format = time_format[:-1] + "%z"       # "...%SZ": the Z of UTC, not a letter
     with_offset = _carries_offset(text, time_format)
     if with_offset and time_zone in _UTC_NAMES:
