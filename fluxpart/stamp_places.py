@@ -27,6 +27,7 @@ minutes, each labelled with one time stamp) (m).
 from __future__ import annotations
 
 import re
+import unicodedata
 from datetime import datetime
 
 import numpy as np
@@ -36,17 +37,21 @@ from .config import setting_text
 
 __all__ = ["ZONE_ABBREVIATIONS", "column_place", "column_utc_offset", "half_interval_message",
            "date_only_repeats_hint", "name_conflict_message", "paired_stamps_message",
-           "parse_like", "repeated_stamp_hint", "spelled_zone_offset", "stated_offset", "stated_place",
+           "ends_in_utc_z", "format_clock", "parse_like", "repeated_stamp_hint",
+           "spelled_zone_offset", "stated_civil", "stated_offset", "stated_place",
            "text_conflict_message", "zone_offset"]
 
 #: Words of a time column's name that say where its stamps sit in the interval (English,
 #: with the German words loggers of German-speaking networks write; common practice).
 _PLACE_WORDS = {
     "start": {"start", "starts", "starting", "begin", "begins", "beginning", "anfang",
-              "beginn"},
-    "middle": {"mid", "middle", "midpoint", "centre", "center", "mitte"},
-    "end": {"end", "ends", "ending", "stop", "finish", "ende"},
+              "beginn", "debut", "inicio", "comienzo", "inizio"},
+    "middle": {"mid", "middle", "midpoint", "centre", "center", "mitte", "milieu", "medio",
+               "mitad"},
+    "end": {"end", "ends", "ending", "stop", "finish", "ende", "fin", "final"},
 }
+#: (French, Spanish and Italian words since layouts27: "horodatage_debut",
+#: "fecha_hora_final"; a column's accents are read without them, "début" as "debut")
 #: Words a place word is written together with in one token ("endtime", "timestart")
 _TIME_WORDS = ("timestamp", "datetime", "stamp", "time", "date", "ts")
 #: (not the zone names "Etc/GMT-1", whose POSIX sign is the other way round: UTC+1)
@@ -55,7 +60,9 @@ _UTC = re.compile(r"(?<![a-z])(?<!etc/)(utc|gmt)(?:([+-])(\d{1,2})(?::?(\d{2}))?
 
 def _tokens(name: str) -> list[str]:
     """Lower-case words of a column name, split at case changes, digits and punctuation."""
-    spaced = re.sub(r"([A-Z]+)([A-Z][a-z])", r"\1 \2", name)
+    plain = "".join(ch for ch in unicodedata.normalize("NFKD", name)
+                    if not unicodedata.combining(ch))          # "début" -> "debut"
+    spaced = re.sub(r"([A-Z]+)([A-Z][a-z])", r"\1 \2", plain)
     spaced = re.sub(r"([a-z])([A-Z])", r"\1 \2", spaced)
     return re.findall(r"[a-z]+|\d+", spaced.lower())
 
@@ -223,11 +230,58 @@ _GERMAN_PLACE = re.compile(
     r"\b(?:mittelungs|mess)?intervall(anfang|beginn|ende|mitte)\b"
     r"|\b(anfang|beginn|ende|mitte)\s+des\s+(?:mittelungs|mess)?(?:zeit)?"
     r"(?:intervall|zeitraum)e?s\b")
+#: Statements of the place in the languages of other networks' exports (French,
+#: Spanish, Italian: "Horodatage en fin de période", "inicio del intervalo", "fine del
+#: periodo di media"; common practice, since layouts27); not where a colon and a number
+#: follow ("fin de la période : 2021-12-31" dates the record)
+_ROMANCE_PLACE = re.compile(
+    r"(?:\b(début|debut|fin|milieu|centre)\s+(?:de\s+(?:la\s+|l')?|du\s+)"
+    r"(?:période|periode|intervalle)\b"
+    r"|\b(inicio|comienzo|principio|final|fin|mitad|medio)\s+del\s+(?:periodo|período|intervalo)\b"
+    r"|\b(inizio|fine|metà|meta)\s+del(?:l'\s*|\s+)(?:periodo|intervallo)\b)"
+    r"(?!\s*(?:de\s+\w+\s*)?[:=]\s*\d)")
+#: Averages over the interval after or before the stamp ("Values are averages over
+#: the following 30 minutes": the stamp starts the interval; "Mittelwerte der
+#: vorangegangenen 30 Minuten": it ends it) (common practice, since layouts27)
+_RELATIVE_PLACE = re.compile(
+    r"\b(?:averages?|averaged|means?|mean\s+values?|values?|totals?|sums?)\s+"
+    r"(?:over|of|for|across)\s+(?:the\s+)?"
+    r"(following|next|subsequent|preceding|previous)\s+"
+    r"(?:\d+|thirty|sixty|half(?:\s+an?)?)?[\s-]*(?:min(?:ute)?s?|hours?|h)\b"
+    r"|\bmittelwerte?\s+(?:der|über\s+die)\s+(folgenden|nächsten|vorangegangenen|"
+    r"vorhergehenden|vorherigen|letzten)\s+(?:\d+\s*)?(?:min(?:uten)?|stunden?)\b")
+#: "Period-ending timestamps", "the period ending at the time shown" (since layouts27;
+#: "Calibration period ending 2021-05-01" states nothing: no word for the stamps or
+#: the time follows)
+_ENDING_AT = re.compile(
+    r"\b(?:period|interval)[\s-]+(beginning|starting|ending|begin|start|end)\s+"
+    r"(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?|labels?|times?)\b"
+    r"|\b(?:period|interval)\s+(beginning|starting|ending)\s+(?:at|with)\s+"
+    r"(?:the\s+|that\s+|this\s+|each\s+|its\s+)?"
+    r"(?:time\s*stamps?|timestamps?|stamps?|time|label)\b"
+    # the "hour ending" convention ("Half-hour ending", "interval-ending"), with no date
+    # after it ("hour ending 2021-06-01 13:00" names one record)
+    r"|\b(?:half[\s-]*)?hour[\s-]+(ending|beginning|starting)\b(?![^;]*\d{4})"
+    r"|\b(?:interval|period)-(ending|beginning|starting)\b(?![^;]*\d{4})"
+    r"|\b(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?)\b[^.;]{0,30}?"
+    r"\b(mid)[\s-]*(?:interval|period)\b")
+_OTHER_PLACE_WORDS = {
+    "début": "start", "debut": "start", "inicio": "start", "comienzo": "start",
+    "principio": "start", "inizio": "start", "fin": "end", "final": "end", "fine": "end",
+    "milieu": "middle", "centre": "middle", "mitad": "middle", "medio": "middle",
+    "metà": "middle", "meta": "middle", "following": "start", "next": "start",
+    "subsequent": "start", "folgenden": "start", "nächsten": "start",
+    "preceding": "end", "previous": "end", "vorangegangenen": "end",
+    "vorhergehenden": "end", "vorherigen": "end", "letzten": "end",
+    "beginning": "start", "starting": "start", "begin": "start", "start": "start",
+    "ending": "end", "end": "end", "mid": "middle",
+}
 #: A place word within a few words after a word for the stamps, in one clause
 #: ("Timestamp at start of each 30-min average", "Time label: interval start")
 _STAMP_PLACE = re.compile(
     r"\b(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?|zeitstempel)\b[^.;]{0,30}?"
-    r"(?<![a-z])(start|beginning|begin|end|middle|centre|center|midpoint)(?![a-z])")
+    r"(?<![a-z])(start|beginning|begin|end|middle|centre|center|midpoint|anfang|beginn|ende"
+    r"|mitte)(?![a-z])")
 #: "interval begin", "period end" in a cell under the time column's name
 _CELL_PLACE = re.compile(r"\b(?:interval|period|averaging|window)\s+"
                          r"(start|beginning|begin|end|middle|centre|center|midpoint)\b"
@@ -238,14 +292,42 @@ _CELL_PLACE = re.compile(r"\b(?:interval|period|averaging|window)\s+"
 #: date written before a clock ("Exported 2021-06-01 12:00 UTC") is not one
 _STAMPS_CLOCK = re.compile(
     r"\b(?:time\s*stamps?|timestamps?|stamps?|date\s*/\s*time|date\s*time|datetime|"
-    r"local\s+time|all\s+data|all\s+times|times|zeitstempel)\b[^0-9.;]{0,15}?"
+    r"local\s+time|all\s+data|all\s+times|times|zeitstempel|horodatage)\b[^0-9.;]{0,15}?"
     r"(?<![a-z])(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+#: A key of the zone or offset, then its value. Besides English and German, the words
+#: for "time zone" of the languages of other tower networks' logger exports (French,
+#: Spanish, Italian, Portuguese, Dutch, Polish, Swedish, Norwegian; common practice,
+#: since layouts27: "Fuseau horaire : UTC" was read as local standard time); a unit in
+#: brackets after the key ("UTC offset (h): 2", "UTC offset [min]: 60") gives the unit of
+#: a bare number.
 _ZONE_KEY = re.compile(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt[\s_-]*offset"
-                       r"|offset\s+(?:from|to)\s+(?:utc|gmt))"
-                       r"(?:\s*\((?:h|hrs?|hours?)\))?"      # "UTC offset (h): 2"
-                       r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*([^,;]*)")
-_IN_UTC = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?)\b[^.;]{0,24}?"
-                     r"\bin\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+                       r"|offset\s+(?:from|to)\s+(?:utc|gmt)|fuseau\s+horaire"
+                       r"|zona\s+horaria|huso\s+horario|fuso\s+orario|fuso\s+hor[aá]rio"
+                       r"|tijd\s*s?zone|strefa\s+czasowa|tidszon|tidssone)"
+                       r"(?:\s*[\(\[](?:utc|gmt)[\s_-]*offset[\)\]])?"   # "Time zone (UTC offset)"
+                       r"(?:\s*[\(\[](?P<unit>h|hrs?|hours?|min|mins|minutes?)[\)\]])?"
+                       r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*(?P<value>[^,;]*)")
+#: "Time offset: +1 h" (a key read only with a unit or a sign and "UTC": "time offset:
+#: 0.2" may be a sensor's lag)
+_TIME_OFFSET_KEY = re.compile(r"\btime[\s_-]*offset\s*[:=]\s*(?P<value>[^,;]*)")
+#: A number of hours, or of hours or minutes with its unit ("1", "+1 h", "60 min"), as
+#: written after an offset key
+_NUMBER_UNIT = re.compile(r"([+-]?\d{1,3}(?:\.\d+)?)\s*(h|hrs?|hours?|min|mins|minutes?)?")
+#: The whole value after a key being one clock: UTC, GMT, GPS time (which loggers
+#: synchronised by a GPS receiver keep: UTC plus the leap seconds since 1980, 18 s since
+#: 2017, IS-GPS-200 (m), within the reader's rounding to whole minutes) or the military
+#: and aviation letter Z ("Zulu") of UTC (ISO 8601 writes UTC as Z (m)), or Universal
+#: Time (UT, French TU), within a second of UTC (m), with an optional ISO 8601 offset
+_CLOCK_VALUE = re.compile(r"(?:utc|gmt|gps|z|zulu|ut|tu|universal)(?:\s*time)?"
+                          r"(?:\s*\((?:utc|gmt|gps)\))?"
+                          r"(?P<offset>\s*[+-]\s*\d{1,2}(?::?\d{2})?)?")
+#: "Data logger time: UTC", "Time: UTC+00:00", "Standard time: UTC": a key ending in
+#: "time" followed by a clock and nothing else (since layouts27; a date or anything else
+#: after the key states nothing: "Export time: 2021-06-01 12:00 UTC")
+_TIME_KEY = re.compile(r"\btime\s*[\]\)]?\s*[:=]\s*\(?\s*(?P<value>[^,;]*)")
+_IN_UTC = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|zeitangaben"
+                     r"|zeiten|uhrzeiten|horodatage|heures?)\b[^.;]{0,24}?"
+                     r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
 #: "Time reference: UTC", "Timebase: UTC", "Time standard = GMT" (a clock or zone follows;
 #: bare numbers are not read, since "time base: 10" may be a sampling rate)
 _REFERENCE_KEY = re.compile(r"(?:\btime[\s_-]*(?:reference|base|standard)|\btimebase"
@@ -281,6 +363,7 @@ _SPELLED_ZONES = (
     ("korea standard time", 9.0), ("china standard time", 8.0),
     ("india standard time", 5.5), ("indian standard time", 5.5),
     ("new zealand standard time", 12.0), ("south africa standard time", 2.0),
+    ("zulu time", 0.0),
 )
 _SPELLED = re.compile(r"(?<![a-z])(" + "|".join(re.escape(p) for p, _ in _SPELLED_ZONES)
                       + r")(?![a-z])")
@@ -325,6 +408,10 @@ def stated_place(text: str, cell: bool = False) -> str | None:
     found |= {places[m.group(1) or m.group(2)] for m in _GERMAN_PLACE.finditer(lowered)}
     for stamp in _STAMP_PLACE.finditer(lowered):          # "Timestamp at start of ..."
         found.add(places.get(stamp.group(1), stamp.group(1)))
+    for pattern in (_ROMANCE_PLACE, _RELATIVE_PLACE, _ENDING_AT):   # since layouts27
+        for m in pattern.finditer(lowered):
+            word = next(group for group in m.groups() if group)
+            found.add(_OTHER_PLACE_WORDS[word])
     if cell:                                              # a units cell "interval begin"
         for m in _CELL_PLACE.finditer(spaced):
             word = m.group(1) or m.group(2) or m.group(3)
@@ -395,7 +482,8 @@ def stated_offset(text: str) -> float | None:
     ----------
     ISO 8601-1:2019 (offsets from UTC as ``±hh``, ``±hhmm``, ``±hh:mm``) (m).
     """
-    original = text.replace("\u2212", "-").strip().strip('"').strip()
+    # quotes aside: a spreadsheet's key and value cells '"Timezone","UTC"' (layouts27)
+    original = text.replace("\u2212", "-").replace('"', "").strip()
     lowered = original.lower()
     key = _CLOCK_KEY.search(lowered) or _REFERENCE_KEY.search(lowered)
     if key and not _ZONE_KEY.search(lowered):
@@ -404,22 +492,34 @@ def stated_offset(text: str) -> float | None:
         offset = column_utc_offset(value)
         if offset is None and len(lowered) == len(original):
             offset = zone_offset(original[key.start(1):key.end(1)])
+        if offset is None:
+            offset = _clock_value(value)              # "Logger clock: GPS" (layouts27)
         return offset if offset is not None else spelled_zone_offset(value)
     key = _ZONE_KEY.search(lowered)
     if key:
-        value = key.group(1).strip().strip('"\'').strip()
+        value = key.group("value").strip().strip('"\'').strip()
         bare = _BARE_OFFSET.match(value.replace(" ", ""))
-        if bare:
+        if bare and not key.group("unit"):    # "[min]: -330" is minutes, not -03:30
             sign, hours, minutes = bare.groups()
             offset = int(hours) + int(minutes or 0) / 60
             return -offset if sign == "-" else float(offset)
-        hours = re.fullmatch(r"[+-]?\d{1,2}(?:\.\d+)?", value.replace(" ", ""))
-        if hours and abs(float(hours.group(0))) <= 14:      # "UTC offset: 1" (hours)
-            return float(hours.group(0))
+        number = _number_offset(value, key.group("unit"))   # "1", "+1 h", "[min]: 60"
+        if number is not None:
+            return number
         offset = column_utc_offset(value)
         if offset is None and len(lowered) == len(original):   # "Time zone: EET"
-            offset = zone_offset(original[key.start(1):key.end(1)])
+            offset = zone_offset(original[key.start("value"):key.end("value")])
+        if offset is None:
+            offset = _clock_value(value)              # "Time zone = Z" (layouts27)
         return offset if offset is not None else spelled_zone_offset(value)
+    key = _TIME_OFFSET_KEY.search(lowered)
+    if key:                                           # "Time offset: +1 h" (layouts27)
+        value = key.group("value").strip()
+        offset = _clock_value(value)
+        if offset is None and re.search(r"[+-]|\d\s*(?:h|min)", value):
+            offset = _number_offset(value, None, unit_needed=True)
+        if offset is not None:
+            return offset
     inside = _IN_UTC.search(lowered)
     if inside:
         return column_utc_offset(inside.group(1) + (inside.group(2) or "").replace(" ", ""))
@@ -427,6 +527,14 @@ def stated_offset(text: str) -> float | None:
              for m in _STAMPS_CLOCK.finditer(lowered)}
     if len(found) == 1 and "synchroni" not in lowered:   # not "clock synchronised to UTC"
         return found.pop()
+    for key in _TIME_KEY.finditer(lowered):       # "Data logger time: UTC" (layouts27)
+        offset = _clock_value(key.group("value").strip())
+        written = original[key.start("value"):key.end("value")].strip()
+        if offset is None and len(lowered) == len(original) and (
+                re.fullmatch(r"\(?[A-Z]{3,4}\)?", written) or _AREA_CITY.fullmatch(written)):
+            offset = zone_offset(written)         # "Logger time: CET", "Time: Europe/Helsinki"
+        if offset is not None:
+            return offset
     spelled = spelled_zone_offset(lowered)        # "All times in Coordinated Universal Time"
     if spelled is not None and _ABOUT_STAMPS.search(_SPELLED.sub(" ", lowered)):
         return spelled                            # not a title that names a zone in passing
@@ -438,6 +546,78 @@ def stated_offset(text: str) -> float | None:
     if offset is None and re.fullmatch(r"\(?[A-Z]{3,4}\)?", original):    # a line "EET"
         offset = zone_offset(original)
     return offset
+
+
+def _clock_value(value: str) -> float | None:
+    """The offset [h] of a value that is one clock and nothing else ("UTC", "GPS",
+    "Z", "UTC+00:00", "GPS time"), or None (see :data:`_CLOCK_VALUE`)."""
+    match = _CLOCK_VALUE.fullmatch(value.strip().rstrip("."))
+    if match is None:
+        return None
+    written = (match.group("offset") or "").replace(" ", "")
+    if not written:
+        return 0.0
+    sign, hours, minutes = _BARE_OFFSET.match(written).groups()
+    offset = int(hours) + int(minutes or 0) / 60
+    return -offset if sign == "-" else float(offset)
+
+
+def _number_offset(value: str, unit: str | None, unit_needed: bool = False) -> float | None:
+    """The offset [h] of a number of hours or minutes after an offset key, or None.
+
+    ``unit`` is a unit written in brackets after the key; else a unit after the number
+    counts ("+1 h", "60 min"), else hours (unless ``unit_needed``). An offset beyond
+    14 h, more than any zone keeps (UTC+14, Line Islands, IANA tz (m)), is no offset.
+    """
+    match = _NUMBER_UNIT.fullmatch(value.strip())
+    if match is None:
+        return None
+    number, written = match.groups()
+    unit = unit or written
+    if unit is None and unit_needed:
+        return None
+    hours = float(number) / 60 if unit and unit.startswith("min") else float(number)
+    return hours if abs(hours) <= 14 else None
+
+
+#: Words for daylight saving time (English, German, French, Spanish, Italian; common
+#: practice) followed by an answer that it is kept, or preceded by "with"
+_SUMMER_WORDS = (r"(?:daylight[\s-]*sav(?:ing|ings)?(?:[\s-]*time)?|\bdst\b|sommerzeit"
+                 r"|summer[\s-]*time|heure\s+d'été|horario\s+de\s+verano|ora\s+legale)")
+_SUMMER_KEPT = re.compile(
+    _SUMMER_WORDS + r"\s*[\]\)]?\s*[:=]\s*\(?\s*(?:yes|on|ja|true|1|oui|sí|si|enabled|"
+    r"active|aktiv|applied|used)\b"
+    r"|\bwith\s+" + _SUMMER_WORDS + r"|\bmit\s+sommerzeit")
+
+
+def stated_civil(text: str) -> bool:
+    """True where a line states stamps in civil time with daylight saving.
+
+    Parameters
+    ----------
+    text : str
+        A line above the header, e.g. ``"Daylight saving time: on"``, ``"Sommerzeit:
+        ja"``, ``"Local time (CET/CEST)"`` (a zone's standard and summer labels side by
+        side, one hour apart).
+
+    Returns
+    -------
+    bool
+
+    References
+    ----------
+    IANA time zone database (abbreviations and offsets of the standard and summer
+    times) (m); daylight saving time advances clocks by one hour (m). Since layouts27.
+    """
+    lowered = text.lower()
+    if _SUMMER_KEPT.search(lowered):
+        return True
+    for match in re.finditer(r"(?<![A-Za-z])([A-Z]{3,4})\s*/\s*([A-Z]{3,4})(?![A-Za-z])",
+                             text):
+        one, other = (ZONE_ABBREVIATIONS.get(match.group(i)) for i in (1, 2))
+        if one is not None and other is not None and np.isclose(abs(one - other), 1.0):
+            return True
+    return False
 
 
 def text_conflict_message(statements: list, time_marks: str, time_format: str,
@@ -491,6 +671,16 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
                     f"but without [input] time_zone {_read_as(utc_offset, offset)} if the "
                     "file is right, or correct that line in a copy of the file if the "
                     "stamps are in local standard time")
+    if time_zone is None:
+        for where, text in statements:
+            if not where.startswith("the cell under") and stated_civil(text):
+                return (f"{where} ({text.strip()[:80]!r}) states stamps in civil time with "
+                        "daylight saving, but without [input] time_zone they are read as the "
+                        f"site's local standard time ({_hours(utc_offset)}, [site] utc_offset"
+                        f" = {utc_offset:g}) all year: the two readings place the summer "
+                        "records an hour apart; set time_zone to the site's zone "
+                        "(\"Area/City\") if the file is right, or correct that line in a copy "
+                        "of the file if the stamps are in local standard time")
     return None
 
 
@@ -507,7 +697,7 @@ def _zone_setting_conflict(offset: float, time_zone: str, utc_offset: float,
         [input] time_zone, a time-zone database name.
     utc_offset : float
         [site] utc_offset [h].
-    what : {"line", "name"}
+    what : {"line", "name", "format"}
         What states the offset (for the fix).
 
     Returns
@@ -542,17 +732,85 @@ def _zone_setting_conflict(offset: float, time_zone: str, utc_offset: float,
         fix = 'set time_zone = "UTC"'
     else:
         fix = f"set time_zone to a zone of {_hours(offset)}"
-    source = "that line" if what == "line" else "the column's name"
+    source = {"line": "that line", "name": "the column's name"}.get(
+        what, "time_format's text")
     return (f"[input] time_zone = {setting_text(time_zone)} reads them in "
             f"{' and '.join(_hours(hours) for hours in held)}: the two readings place every "
             f"record {apart} hour(s) apart; {fix} if the file is right, or correct "
             f"{source} in a copy of the file if the setting is")
 
 
+def format_clock(time_format: str) -> tuple[str, float] | None:
+    """The clock a strptime format writes as literal text.
+
+    Parameters
+    ----------
+    time_format : str
+        ``[input] time_format``, e.g. ``"%Y-%m-%d %H:%M UTC"``, ``"%d.%m.%Y %H:%M MEZ"``,
+        ``"%Y-%m-%dT%H:%M+00:00"``.
+
+    Returns
+    -------
+    tuple of (str, float) or None
+        The text and its offset [h]; None where the format writes no clock as text or
+        reads the stamps' own (``%z``, ``%Z``, the Z of UTC, ``"ISO8601"``).
+
+    Notes
+    -----
+    Such text matches the stamps' clock label and drops it, so the stamps are read as
+    local standard time although the format itself says they are not; it is judged as
+    the time column's name is (since layouts27; before, UTC stamps were read an hour
+    off at a UTC+1 site without a word).
+
+    References
+    ----------
+    Python documentation, ``datetime.strptime``: characters other than directives match
+    themselves (m). ISO 8601-1:2019 (offsets as ``±hh:mm``, ``±hhmm``) (m).
+    """
+    if _labelled(time_format):
+        return None
+    literal = re.sub(r"%.", " ", time_format)
+    offset = column_utc_offset(literal)
+    if offset is None:
+        offset = zone_offset(literal)
+    if offset is not None:
+        words = [w for w in literal.split() if re.search(r"[A-Za-z]{2}", w)]
+        return (words[-1] if words else literal.strip()), offset
+    written = re.search(r"(?<![\d%])([+-])(\d{2}):?(\d{2})\s*$", time_format)
+    if written and "%" not in time_format[written.start():]:
+        sign, hours, minutes = written.groups()
+        offset = int(hours) + int(minutes) / 60
+        return written.group(0).strip(), -offset if sign == "-" else float(offset)
+    return None
+
+
 def _labelled(time_format: str) -> bool:
     """True where the format reads each stamp's own UTC offset or zone label."""
     return (time_format == "ISO8601" or "%z" in time_format or "%Z" in time_format
-            or time_format.rstrip().endswith("Z"))
+            or ends_in_utc_z(time_format))
+
+
+def ends_in_utc_z(time_format: str) -> bool:
+    """True where a strptime format ends in the literal Z of UTC ("%Y-%m-%dT%H:%M:%SZ"):
+    after a directive or a character that is no letter, not the last letter of a word
+    ("%d.%m.%Y %H:%M MEZ" ends in the German label of Central European Time, UTC+1;
+    read as the Z of UTC before layouts27, every record moved an hour).
+
+    Parameters
+    ----------
+    time_format : str
+        ``[input] time_format``.
+
+    Returns
+    -------
+    bool
+
+    References
+    ----------
+    ISO 8601-1:2019: "Z" after a time of day marks UTC (m). Einheiten- und Zeitgesetz
+    § 4: MEZ, OEZ, WEZ and their summer times MESZ, OESZ, WESZ (m).
+    """
+    return re.search(r"(?:%[A-Za-z]|[^A-Za-z%]|^)Z$", time_format.rstrip()) is not None
 
 
 def _read_as(utc_offset: float, offset: float) -> str:
@@ -604,6 +862,19 @@ def name_conflict_message(time_columns: tuple, time_marks: str, time_format: str
                     "copy of the file if the setting is")
     if _labelled(time_format) or utc_offset is None:
         return None
+    written = format_clock(time_format)
+    if written is not None:                       # "%Y-%m-%d %H:%M UTC" (layouts27)
+        text, offset = written
+        said = (f"[input] time_format {setting_text(time_format)} reads {text!r} as text, "
+                f"which states stamps in {_hours(offset)}")
+        if time_zone is not None:
+            against = _zone_setting_conflict(offset, time_zone, utc_offset, "format")
+            if against:
+                return f"{said}, but {against}"
+        elif not np.isclose(offset, utc_offset):
+            return (f"{said}, but without [input] time_zone {_read_as(utc_offset, offset)}"
+                    " if the stamps are in that clock, or remove the text from time_format "
+                    "if they are in local standard time")
     for column in time_columns:
         offset = column_utc_offset(column)
         if offset is None:                        # "Zeit (MEZ)", "time_EET"

@@ -14,6 +14,7 @@ local standard time (UTC + ``utc_offset``, no daylight saving).
 from __future__ import annotations
 
 import re
+import warnings
 from dataclasses import dataclass
 from datetime import datetime, timedelta
 
@@ -28,7 +29,13 @@ from .errors import (
     SpacingError,
     TimestampError,
 )
-from .stamp_places import date_only_repeats_hint, repeated_stamp_hint
+from .stamp_places import (
+    column_utc_offset,
+    date_only_repeats_hint,
+    ends_in_utc_z,
+    repeated_stamp_hint,
+    zone_offset,
+)
 
 __all__ = [
     "INTERVALS_MINUTES",
@@ -741,6 +748,109 @@ def _spreadsheet_cell_time(failed: pd.Series, time_columns, time_format: str) ->
     return ""
 
 
+def _written_where_it_changes(text: pd.Series, failed: np.ndarray, time_columns) -> str:
+    """A hint where the first of several time columns is empty on every failing line and
+    holds each of its values once on the others: a date written only on the first record
+    of each day (a sheet whose repeated dates were merged or blanked), else ''.
+
+    References
+    ----------
+    Common practice: spreadsheets show a repeated value once per group (merged cells, a
+    report layout), and a sheet saved as CSV leaves the other cells empty.
+    """
+    if isinstance(time_columns, str) or len(time_columns) < 2 or failed.all():
+        return ""
+    first_empty = text.str.match(r"\s").to_numpy()
+    if not first_empty[failed].all() or first_empty[~failed].any():
+        return ""
+    written = text[~failed].str.split().str[0]
+    if written.duplicated().any():
+        return ""
+    return (f"column {time_columns[0]!r} is empty on {int(failed.sum())} of {len(text)} "
+            "lines and holds each of its values once on the others: it is written only "
+            "where it changes (a sheet's repeated cells merged or left blank), so these "
+            "records have no date: write it on every line in a copy of the file")
+
+
+def _text_around_stamps(text: pd.Series, failed: np.ndarray, time_format: str) -> str:
+    """A hint where every stamp carries the same text before or after it that the format
+    lacks ("'" of a spreadsheet's text cell, " Uhr", " h") or writes the ISO 8601 "T"
+    between date and time where the format has a space, and the format with it reads
+    every stamp; else ''. A clock after the stamps ("UTC", "CET") is no such text:
+    written into the format as text it would be read as local standard time.
+
+    References
+    ----------
+    Python documentation, ``time.strftime``: characters of a format other than
+    directives match themselves, "%%" a percent sign (m). ISO 8601-1:2019 (the "T"
+    between date and time) (m).
+    """
+    cells = text.str.strip()
+    cells = cells[cells != ""]
+    if cells.empty or time_format.upper() == "ISO8601":
+        return ""
+    stamp = cells.iloc[0]
+    prefix = re.match(r"[^0-9A-Za-z]*", stamp).group(0)
+    suffix = re.search(r"[^0-9]*$", stamp).group(0)
+    candidates = []
+    if prefix and cells.str.startswith(prefix).all():
+        candidates.append((f"the stamps begin with {prefix!r}",
+                           prefix.replace("%", "%%") + time_format))
+    if suffix.strip() and cells.str.endswith(suffix).all() \
+            and column_utc_offset(suffix) is None and zone_offset(suffix) is None \
+            and not re.search(r"(?i)[ap]\.?m\.?|[+-]", suffix):
+        candidates.append((f"the stamps end in {suffix!r}",
+                           time_format + suffix.replace("%", "%%")))
+    if " " in time_format and "T" in stamp:
+        candidates.append(("the stamps write 'T' (ISO 8601) between date and time",
+                           time_format.replace(" ", "T", 1)))
+    for what, candidate in candidates:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            read = pd.to_datetime(cells, format=candidate, errors="coerce")
+        if read.notna().all():
+            return (f"{what}, which time_format lacks: time_format = "
+                    f"{setting_text(candidate)} reads every stamp")
+    return ""
+
+
+#: A format ending in hours and minutes written as a decimal number ("%H.%M", "%H,%M")
+_DECIMAL_CLOCK = re.compile(r"%H([.,])%M$")
+
+
+def _minutes_of_one_digit(text: pd.Series, time_format: str) -> tuple | None:
+    """(row, message tail) where a format ending in %H.%M reads a minute field of one
+    digit ("0.3", "13.3"), else None.
+
+    Such a field is no logger's minute: it is hours and minutes saved as a number, the
+    minutes' trailing zero dropped ("0.30" saved as 0.3 is 00:30), or decimal hours
+    (0.3 h is 00:18); strptime reads it as 3 minutes (00:03). The two readings differ,
+    so the file is refused naming both, not read with steps of 3 and 57 minutes.
+
+    References
+    ----------
+    Python documentation, ``datetime.strptime``: %M accepts one digit (m). IEEE 754 /
+    common practice: a number saved without its trailing zeros (0.30 -> 0.3).
+    """
+    match = _DECIMAL_CLOCK.search(time_format.strip())
+    if match is None:
+        return None
+    mark = re.escape(match.group(1))
+    short = text.str.strip().str.contains(rf"(?<![\d.,])\d{{1,2}}{mark}\d$", regex=True)
+    short = short.fillna(False).to_numpy(dtype=bool)
+    if not short.any():
+        return None
+    row = int(np.flatnonzero(short)[0])
+    clock = re.search(rf"(\d{{1,2}}){mark}(\d)$", text.iloc[row].strip())
+    hours, tenth = int(clock.group(1)), int(clock.group(2))
+    decimal = hours * 60 + tenth * 6
+    return row, (f", whose minutes have one digit ({int(short.sum())} such stamp(s)), "
+                 f"which %M reads as {hours:02d}:{tenth:02d}: hours and minutes saved as a "
+                 f"number without the minutes' trailing zero read {hours:02d}:{tenth}0, "
+                 f"decimal hours {decimal // 60:02d}:{decimal % 60:02d}; write the times "
+                 "with two-digit minutes (or as HH:MM) in a copy of the file")
+
+
 def _other_format(stamp: str, time_format: str) -> str:
     """A hint where a stamp fails only for a 12-hour clock, a two-digit year or seconds
     written in one of stamp and format but not the other, else ''."""
@@ -952,7 +1062,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         # (m); pandas reads only upper case
         text = (text.str.replace(r"(?<=\d)t(?=\d)", "T", regex=True)
                 .str.replace(r"(?<=\d)z$", "Z", regex=True))
-    if time_format.endswith("Z") and not time_format.endswith("%Z") and time_zone is None:
+    if time_format.endswith("Z") and ends_in_utc_z(time_format) and time_zone is None:
         time_format = time_format[:-1] + "%z"       # "...%SZ": the Z of UTC, not a letter
     with_offset = _carries_offset(text, time_format)
     if with_offset and time_zone in _UTC_NAMES:
@@ -1011,6 +1121,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         if text.iloc[first] == " ".join(time_columns):
             hint = ("; the header line repeats there (files joined end to end?): remove the "
                     "repeated header lines, or list the files in [input] path instead")
+        elif _written_where_it_changes(text, failed, time_columns):
+            hint = "; " + _written_where_it_changes(text, failed, time_columns)
         elif first == 0 and not any(ch.isdigit() for ch in text.iloc[0][:4]):
             # the first rows without a stamp: units or processing lines (a logger writes
             # up to three under its header); the count to skip is all of them
@@ -1088,6 +1200,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = "; " + _spreadsheet_cell_time(text[failed], time_columns, time_format)
         elif _other_format(text.iloc[first], time_format):
             hint = "; " + _other_format(text.iloc[first], time_format)
+        elif _text_around_stamps(text, failed, time_format):
+            hint = "; " + _text_around_stamps(text, failed, time_format)
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
@@ -1097,6 +1211,10 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
             f"{text.iloc[first]!r}, which does not match time_format = {setting_text(time_format)}; "
             f"{int(failed.sum())} stamp(s) fail to parse{hint}")
+    dropped = _minutes_of_one_digit(text, time_format)
+    if dropped:
+        raise TimestampError(f"{_time_setting(time_columns)}: {_where(source, lines, dropped[0])}"
+                             f" has stamp {text.iloc[dropped[0]]!r}{dropped[1]}")
     exchanged = _exchanged_spread(readable, parsed, ~(is_24 | date_only), time_format,
                                   with_offset)
     if exchanged:
