@@ -625,10 +625,8 @@ def _write_locked(dataset, path: Path, engine: str, held: ExitStack) -> Path:
         # a probe, removed at once: a folder that cannot be written or a name too long
         # is named before the lock is taken; the file written is made under the lock,
         # where no other export of `path` can take it for a leftover
-        handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp",
-                                             dir=path.parent)
-        os.close(handle)
-        os.unlink(temporary)
+        # (a folder of the temporary file's name and length)
+        os.rmdir(tempfile.mkdtemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent))
     except OSError as error:        # a read-only medium, no permission, a file in the path
         if error.errno == errno.ENAMETOOLONG:
             # the name fits, its temporary file '.NAME.xxxxxxxx.tmp' (14 bytes more) does not

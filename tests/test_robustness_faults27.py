@@ -147,3 +147,30 @@ def _remove_tree(folder: Path) -> None:
     for entry in folder.iterdir():
         entry.unlink()
     folder.rmdir()
+
+
+# --------------------------------------------------------------------------- batch
+
+
+def test_a_batch_starting_leaves_the_network_tables_another_batch_writes(tmp_path):
+    """Two batches into one output folder (a scheduled batch and a hand-started one):
+    the one starting swept every ``.network_annual.xxxxxxxx`` older than its own start,
+    so the staging folder of a batch writing its network tables at that moment went,
+    and that batch failed. Now the sweep is made only under the network tables' lock,
+    taken without waiting: while another batch holds it (here the test) nothing is
+    swept; once free, a leftover goes whatever its time (one dated ahead of the clock,
+    a file server's, was kept for good before)."""
+    from fluxpart import batch
+
+    out = tmp_path / "net"
+    out.mkdir()
+    live = out / ".network_annual.abcd1234"
+    (live / "site=fen").mkdir(parents=True)
+    _an_hour_ago(live)
+    with folder_lock(out / batch.NETWORK_SEAL):
+        assert batch._sweep_leftovers(out) == []
+        assert (live / "site=fen").is_dir()
+    future = time.time() + 5 * 365 * 86400
+    os.utime(live, (future, future))
+    assert batch._sweep_leftovers(out) == [live.name]
+    assert sorted(p.name for p in out.iterdir()) == []
