@@ -43,6 +43,7 @@ import glob
 import hashlib
 import json
 import logging
+import math
 import os
 import re
 import shutil
@@ -752,6 +753,7 @@ def _write_network(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFrame]:
 
 
 def _write_network_locked(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFrame]:
+    _sweep_leftovers(out, locked=True)
     done = [o for o in outcomes if o.status != "failed"]
     atomic_write_bytes(out / NETWORK_SEAL, _seal_bytes({"format": _NETWORK_FORMAT,
                                                          "complete": False}))
@@ -1197,7 +1199,6 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     cluster of a process and keeps that moment's environment variables for the
     workers of later clusters.
     """
-    started = time.time()
     code_fingerprint()               # the client's code as loaded now (fluxpart.worker_match)
     network = read_sites_file(sites_file)
     limit = (network.site_time_limit if site_time_limit is None
@@ -1207,7 +1208,7 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     require_owner_access()           # before a folder or a cluster is made
     _check_cluster_options(scheduler, workers)   # a usage error leaves no new folder
     _make_writable_out(out)          # before the cluster starts and any site is computed
-    _sweep_leftovers(out, started)
+    _sweep_leftovers(out)
     client, cluster = _client(scheduler, workers, len(network.sites))
     # the client logs its lost scheduler's reconnection tries as ERROR with tracebacks;
     # the sites it concerns are named by the batch summary (scheduler_lost_error)
@@ -1567,12 +1568,25 @@ _LEFTOVER = re.compile(
     rf"[a-z0-9_]{{8}}|{re.escape(FAILURES_FILE)}\.[a-z0-9_]{{8}}\.tmp)$")
 
 
-def _sweep_leftovers(out: Path, started: float) -> list[str]:
+def _sweep_leftovers(out: Path, *, locked: bool = False) -> list[str]:
     """Remove what a killed batch left while writing its network tables in `out`: entries
-    matching :data:`_LEFTOVER` older than this batch (:func:`fluxpart.store.remove_stale`;
-    a batch writing into the same folder at this moment is left alone). Returns their names.
+    matching :data:`_LEFTOVER` (:func:`fluxpart.store.remove_stale`). Returns their names.
+
+    Only under the lock of the network tables (held by the caller where `locked`, else
+    taken without waiting; nothing is swept while another batch holds it: that batch
+    writes them now, and sweeps itself). Every such entry is then a leftover, whatever
+    its modification time. Judged by that time against this batch's start, the staging
+    folder of a batch writing its network tables as this one began was swept, and that
+    batch failed; one dated ahead of the clock (a file server's) was kept for good
+    (round faults27).
     """
-    return remove_stale(out, _LEFTOVER, started)
+    if locked:
+        return remove_stale(out, _LEFTOVER, math.inf)
+    try:
+        with folder_lock(out / NETWORK_SEAL, timeout=0, remove=True):
+            return remove_stale(out, _LEFTOVER, math.inf)
+    except OutputError:             # another batch writes the network tables now
+        return []
 
 
 def _executing_keys(dask_worker) -> list:

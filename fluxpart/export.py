@@ -49,10 +49,11 @@ version 1.10. https://cfconventions.org (sections 2.5.1 missing data, 3.3 standa
 from __future__ import annotations
 
 import errno
+import math
 import os
 import re
 import tempfile
-import time
+from contextlib import ExitStack
 from pathlib import Path
 
 import numpy as np
@@ -599,16 +600,33 @@ def write_netcdf(result, path) -> Path:
         directory, result = Path(result), load(result)
     _check_target(path, result.provenance, directory)
     require_owner_access()
-    started = time.time()
     dataset = to_xarray(result)
     if directory is not None:
         _credit(dataset, _computed_by(directory))
     engine = _engine()
+    with ExitStack() as held:
+        return _write_locked(dataset, path, engine, held)
+
+
+def _write_locked(dataset, path: Path, engine: str, held: ExitStack) -> Path:
+    """Write `dataset` to `path` through a temporary file beside it, holding the lock
+    of `path` (:func:`fluxpart.resultdir.folder_lock`, entered on `held`) from before
+    the temporary file is made and those of killed exports are swept until the file is
+    in place.
+
+    Two exports to one file at once: the second swept the first's temporary file as a
+    leftover (made before the second began, not yet written to) and the first failed
+    "writing failed (No such file or directory) ... free space" (round faults27).
+    """
+    from .resultdir import DEFAULT_LOCK_TIMEOUT, folder_lock
+
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
-        _sweep_temporary(path, started)
-        handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp",
-                                             dir=path.parent)
+        # a probe, removed at once: a folder that cannot be written or a name too long
+        # is named before the lock is taken; the file written is made under the lock,
+        # where no other export of `path` can take it for a leftover
+        # (a folder of the temporary file's name and length)
+        os.rmdir(tempfile.mkdtemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent))
     except OSError as error:        # a read-only medium, no permission, a file in the path
         if error.errno == errno.ENAMETOOLONG:
             # the name fits, its temporary file '.NAME.xxxxxxxx.tmp' (14 bytes more) does not
@@ -620,7 +638,13 @@ def write_netcdf(result, path) -> Path:
                   else "choose a writable place")
         raise OutputError(f"--netcdf {str(path)!r}: cannot write in {str(path.parent)!r} "
                           f"({error.strerror or error}); {remedy}") from None
+    handle = temporary = None
     try:
+        # waits for another export of the same file (saying so on stderr)
+        held.enter_context(folder_lock(path, DEFAULT_LOCK_TIMEOUT, remove=True))
+        handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp",
+                                             dir=path.parent)
+        _sweep_temporary(path, keep=Path(temporary))
         # inside: a network file system reports a failed write (full quota, I/O error) at
         # close, and the error then escaped as a traceback leaving the temporary file
         if engine == "h5netcdf":
@@ -645,7 +669,8 @@ def write_netcdf(result, path) -> Path:
         os.replace(temporary, path)
     except OSError as error:        # a full disk, the file-size limit (ulimit -f), an I/O error
         _close_quietly(handle)
-        Path(temporary).unlink(missing_ok=True)
+        if temporary is not None:
+            Path(temporary).unlink(missing_ok=True)
         reason = os.strerror(error.errno) if error.errno else str(error).split(" (")[0]
         remedy = (full_disk_remedy(Path(path).parent) if error.errno == errno.ENOSPC
                   else "free space, or choose another place")
@@ -657,7 +682,8 @@ def write_netcdf(result, path) -> Path:
         raise failed from None
     except BaseException:
         _close_quietly(handle)
-        Path(temporary).unlink(missing_ok=True)
+        if temporary is not None:
+            Path(temporary).unlink(missing_ok=True)
         raise
     return path
 
@@ -680,12 +706,16 @@ def _name_limit(folder: Path) -> int:
         return 255
 
 
-def _sweep_temporary(path: Path, started: float) -> None:
-    """Remove the temporary files of exports to `path` killed before `started` [s since epoch]:
-    only ``.NAME.xxxxxxxx.tmp`` beside `path` (the names :func:`write_netcdf` gives them),
-    a file being written now left alone (:func:`fluxpart.store.remove_stale`)."""
+def _sweep_temporary(path: Path, keep: Path) -> None:
+    """Remove the temporary files killed exports to `path` left: ``.NAME.xxxxxxxx.tmp``
+    beside `path` (the names :func:`write_netcdf` gives them) other than `keep`, this
+    export's own. Called holding the lock of `path`, under which no other export of it
+    writes, so every other such file is a leftover whatever its modification time (a
+    file system whose clock runs ahead kept them for good when they were judged by it,
+    and one whose clock runs behind swept the file of an export running now).
+    """
     remove_stale(path.parent, re.compile(rf"^\.{re.escape(path.name)}\.[a-z0-9_]{{8}}\.tmp$"),
-                 started)
+                 math.inf, keep=keep)
 
 
 def _check_target(path: Path, provenance, directory) -> None:

@@ -69,7 +69,7 @@ import math
 import os
 import re
 import tempfile
-import time
+from contextlib import ExitStack
 from pathlib import Path
 
 import numpy as np
@@ -384,7 +384,6 @@ def write_csv(result, folder) -> Path:
         directory = result
         result = load(directory)
         source, stored = _computed_by(directory), True
-    started = time.time()
     files = csv_tables(result, source, stored=stored)
     parent = target.absolute().parent
     for ancestor in (parent, *parent.parents):
@@ -396,15 +395,41 @@ def write_csv(result, folder) -> Path:
     try:
         parent.mkdir(parents=True, exist_ok=True)
         stem = _staging_stem(target.name, parent)
-        remove_stale(parent, re.compile(rf"^\.{re.escape(stem)}\.[a-z0-9_]{{8}}\.tmp$"),
-                     started)
-        staging = Path(tempfile.mkdtemp(prefix=f".{stem}.", suffix=".tmp", dir=parent))
+        # a probe, removed at once: a folder that cannot be written is named before the
+        # lock is taken; the staging folder is made under the lock (_write_locked)
+        Path(tempfile.mkdtemp(prefix=f".{stem}.", suffix=".tmp", dir=parent)).rmdir()
     except OSError as error:
         remedy = (full_disk_remedy(parent) if error.errno == errno.ENOSPC
                   else "choose a writable place")
         raise OutputError(f"--csv {str(target)!r}: cannot write in {str(parent)!r} "
                           f"({error.strerror or error}); {remedy}") from None
+    with ExitStack() as held:
+        _write_locked(files, target, parent, stem, held)
+    return target
+
+
+def _write_locked(files: dict, target: Path, parent: Path, stem: str,
+                  held: ExitStack) -> None:
+    """Write `files` into a staging folder ``.STEM.xxxxxxxx.tmp`` in `parent` and rename
+    it to `target`, holding the lock of `target` (:func:`fluxpart.resultdir.folder_lock`,
+    entered on `held`) from before the staging folder is made and those of killed exports
+    are swept until the rename.
+
+    Every other staging folder of `target` is then a leftover, whatever its modification
+    time: judged by it, a file system whose clock runs behind (a network file server's)
+    let a second export sweep the staging folder of one running now, and one whose clock
+    runs ahead kept leftovers for good (round faults27).
+    """
+    from .resultdir import DEFAULT_LOCK_TIMEOUT, folder_lock
+
+    staging = None
     try:
+        # the staging stem: the target's name, or its hash where a name near the limit
+        # leaves no room for '.NAME.lock'
+        held.enter_context(folder_lock(parent / stem, DEFAULT_LOCK_TIMEOUT, remove=True))
+        staging = Path(tempfile.mkdtemp(prefix=f".{stem}.", suffix=".tmp", dir=parent))
+        remove_stale(parent, re.compile(rf"^\.{re.escape(stem)}\.[a-z0-9_]{{8}}\.tmp$"),
+                     math.inf, keep=staging)
         for name, data in files.items():
             path = staging / name
             with open(path, "wb") as handle:
@@ -418,7 +443,8 @@ def write_csv(result, folder) -> Path:
             target.rmdir()                       # empty: replaced by the rename
         os.rename(staging, target)
     except OSError as error:
-        _remove(staging)
+        if staging is not None:
+            _remove(staging)
         reason = os.strerror(error.errno) if error.errno else str(error)
         if error.errno in (errno.ENOTEMPTY, errno.EEXIST) and target.exists():
             # another export (or a user) filled the folder between the check and the rename
@@ -431,9 +457,9 @@ def write_csv(result, folder) -> Path:
         raise OutputError(f"--csv {str(target)!r}: writing failed ({reason}); nothing was "
                           f"written: {remedy}") from None
     except BaseException:
-        _remove(staging)
+        if staging is not None:
+            _remove(staging)
         raise
-    return target
 
 
 def check_name(target: Path) -> None:

@@ -164,7 +164,7 @@ def unreadable(path, error: OSError) -> InputFileError:
                           "make it and its folder readable by this user")
 
 
-def remove_stale(folder, pattern, before: float) -> list[str]:
+def remove_stale(folder, pattern, before: float, *, keep=None) -> list[str]:
     """Remove the entries of `folder` a killed writer left: names matching `pattern`,
     last modified before `before`.
 
@@ -176,7 +176,11 @@ def remove_stale(folder, pattern, before: float) -> list[str]:
         Names of the leftovers (a writer's staging folders or temporary files).
     before : float
         Seconds since the epoch when the calling writer began: an entry modified since
-        belongs to a writer running now and is kept.
+        belongs to a writer running now and is kept. ``math.inf`` where the caller holds
+        the lock under which every writer of these names works (any such entry but its
+        own is then a leftover, whatever the file system's clock says).
+    keep : path-like, optional
+        The caller's own entry, never removed.
 
     Returns
     -------
@@ -192,6 +196,8 @@ def remove_stale(folder, pattern, before: float) -> list[str]:
         return removed
     for entry in entries:
         if not pattern.match(entry.name) or entry.is_symlink():
+            continue
+        if keep is not None and entry.name == Path(keep).name:
             continue
         try:
             if entry.stat().st_mtime >= before:
