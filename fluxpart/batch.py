@@ -369,7 +369,6 @@ def read_sites_file(path) -> NetworkFile:
 
 def check_site_time_limit(value, where: str) -> float:
     """A site time limit [min] as a positive finite float, else a ConfigError naming `where`."""
-    import math
 
     if isinstance(value, bool) or not isinstance(value, (int, float)) \
             or not math.isfinite(value) or value <= 0:
@@ -1581,10 +1580,10 @@ def _sweep_leftovers(out: Path, *, locked: bool = False) -> list[str]:
     (round faults27).
     """
     if locked:
-        return remove_stale(out, _LEFTOVER, math.inf)
+        return remove_stale(out, _LEFTOVER)
     try:
         with folder_lock(out / NETWORK_SEAL, timeout=0, remove=True):
-            return remove_stale(out, _LEFTOVER, math.inf)
+            return remove_stale(out, _LEFTOVER)
     except OutputError:             # another batch writes the network tables now
         return []
 

@@ -12,7 +12,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from .measured_months import month_runs_text, unchecked_months, unmeasured_months
+from .measured_months import month_runs_text, unchecked_months
 
 __all__ = ["budget_year_warnings"]
 
@@ -87,13 +87,10 @@ def _unmeasured_months_warning(year, row, timeseries, in_year) -> list:
     quality = timeseries["nee_fill_quality"].to_numpy()[in_year]
     stamps = timeseries.index[in_year]
     # months inside an outage longer than the intervals were checked on (round review31:
-    # not a few hours of a month at a record's edge)
-    if (quality == 0).any():
-        months = unchecked_months(stamps, quality == 0)
-        if not months:
-            return []
-    else:                        # a year without any measured NEE: every month named
-        months = unmeasured_months(stamps, quality == 0)
+    # not a few hours of a month at a record's edge); every month of a year without any
+    months = unchecked_months(stamps, quality == 0)
+    if not months:
+        return []
     where = f"({month_runs_text(months)})"
     # the annual table calls such a year complete (every record present and filled)
     complete = ", although the year is complete" if bool(row.get("complete", False)) else ""

@@ -49,7 +49,6 @@ version 1.10. https://cfconventions.org (sections 2.5.1 missing data, 3.3 standa
 from __future__ import annotations
 
 import errno
-import math
 import os
 import re
 import tempfile
@@ -715,7 +714,7 @@ def _sweep_temporary(path: Path, keep: Path) -> None:
     and one whose clock runs behind swept the file of an export running now).
     """
     remove_stale(path.parent, re.compile(rf"^\.{re.escape(path.name)}\.[a-z0-9_]{{8}}\.tmp$"),
-                 math.inf, keep=keep)
+                 keep=keep)
 
 
 def _check_target(path: Path, provenance, directory) -> None:

@@ -429,7 +429,7 @@ def _write_locked(files: dict, target: Path, parent: Path, stem: str,
         held.enter_context(folder_lock(parent / stem, DEFAULT_LOCK_TIMEOUT, remove=True))
         staging = Path(tempfile.mkdtemp(prefix=f".{stem}.", suffix=".tmp", dir=parent))
         remove_stale(parent, re.compile(rf"^\.{re.escape(stem)}\.[a-z0-9_]{{8}}\.tmp$"),
-                     math.inf, keep=staging)
+                     keep=staging)
         for name, data in files.items():
             path = staging / name
             with open(path, "wb") as handle:

@@ -132,8 +132,9 @@ def unchecked_months(stamps, measured, longest_days: float = CHECKED_OUTAGE_DAYS
         one before it, or the first record, to the record before the first measured one
         after it, or the last record, plus one record's interval) lasts longer than
         `longest_days`; in time order. Every whole calendar month without a measured
-        record is such a month; a part of a month at the start or end of the records,
-        unmeasured for less, is not (round review31: six hours of a tower's first day,
+        record is such a month, and every month of a period without any measured
+        record; a part of a month at the start or end of the records, unmeasured for
+        less, is not (round review31: six hours of a tower's first day,
         31 March, named "a month without measured NEE" whose sums were model output).
 
     References
@@ -144,8 +145,8 @@ def unchecked_months(stamps, measured, longest_days: float = CHECKED_OUTAGE_DAYS
     stamps = pd.DatetimeIndex(stamps)
     measured = np.asarray(measured, dtype=bool)
     months = unmeasured_months(stamps, measured)
-    if not months:
-        return []
+    if not months or not measured.any():
+        return months                      # a period without any measured NEE: all of it
     ticks = stamps.to_numpy().astype("datetime64[ns]").astype(np.int64)   # any unit
     step = int(np.median(np.diff(ticks))) if ticks.size > 1 else 0
     where = np.flatnonzero(measured)

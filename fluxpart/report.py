@@ -57,7 +57,7 @@ from .figures import (
     window_status,
 )
 from .manifest import CAUTION, shown_name
-from .measured_months import month_runs_text, unchecked_months, unmeasured_months
+from .measured_months import month_runs_text, unchecked_months
 from .resultdir import (
     DEFAULT_LOCK_TIMEOUT,
     clean_leftovers,
@@ -326,14 +326,12 @@ def _unmeasured_note(written: Written, label, mask) -> str:
     if "nee_fill_quality" not in series.columns or not np.any(mask):
         return ""
     measured = fill_category(series["nee_fill_quality"].to_numpy()[mask]) == "measured"
-    # months inside an outage longer than the intervals were checked on (round review31)
-    if measured.any():
-        months = unchecked_months(series.index[mask], measured)
-        if not months:
-            return ""
-    else:
-        months = unmeasured_months(series.index[mask], measured)
-    total = len(unmeasured_months(series.index[mask], np.zeros(int(np.sum(mask)), bool)))
+    # months inside an outage longer than the intervals were checked on (round review31);
+    # every month of a period without any measured NEE
+    months = unchecked_months(series.index[mask], measured)
+    if not months:
+        return ""
+    total = series.index[mask].to_period("M").nunique()
     what = ("No NEE was measured in this period" if not measured.any() else
             f"No NEE was measured in {len(months)} of its {total} months")
     return (f'<p class="caution" data-summary="unmeasured_months" data-year="{_e(label)}" '

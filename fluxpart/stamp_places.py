@@ -660,17 +660,12 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
             offset = column_utc_offset(text)      # "yyyy-mm-dd hh:mm UTC" under the stamps
             if offset is None:                    # "yyyy-mm-dd hh:mm MEZ", "EET"
                 offset = zone_offset(text)
-        if offset is not None and time_zone is not None:
-            against = _zone_setting_conflict(offset, time_zone, utc_offset, "line")
-            if against:
-                return (f"{where} ({text.strip()[:80]!r}) states stamps in {_hours(offset)}, "
-                        f"but {against}")
-            continue
-        if offset is not None and not np.isclose(offset, utc_offset):
-            return (f"{where} ({text.strip()[:80]!r}) states stamps in {_hours(offset)}, "
-                    f"but without [input] time_zone {_read_as(utc_offset, offset)} if the "
-                    "file is right, or correct that line in a copy of the file if the "
-                    "stamps are in local standard time")
+        refusal = offset is not None and _clock_refusal(
+            f"{where} ({text.strip()[:80]!r}) states stamps in {_hours(offset)}", offset,
+            time_zone, utc_offset, "line", "if the file is right, or correct that line in a "
+            "copy of the file if the stamps are in local standard time")
+        if refusal:
+            return refusal
     if time_zone is None:
         for where, text in statements:
             if not where.startswith("the cell under") and stated_civil(text):
@@ -681,6 +676,22 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
                         "records an hour apart; set time_zone to the site's zone "
                         "(\"Area/City\") if the file is right, or correct that line in a copy "
                         "of the file if the stamps are in local standard time")
+    return None
+
+
+def _clock_refusal(said: str, offset: float, time_zone, utc_offset: float, what: str,
+                   fix: str) -> str | None:
+    """The refusal where a clock the file states (`said`, `offset` [h east of UTC])
+    disagrees with the settings, else None: with [input] time_zone, a zone that never
+    keeps `offset` (:func:`_zone_setting_conflict`, `what` the kind of statement);
+    without, an offset other than ``utc_offset``, with `fix` after the setting that would
+    read it."""
+    if time_zone is not None:
+        against = _zone_setting_conflict(offset, time_zone, utc_offset, what)
+        return f"{said}, but {against}" if against else None
+    if not np.isclose(offset, utc_offset):
+        return (f"{said}, but without [input] time_zone {_read_as(utc_offset, offset)} "
+                f"{fix}")
     return None
 
 
@@ -867,29 +878,21 @@ def name_conflict_message(time_columns: tuple, time_marks: str, time_format: str
         text, offset = written
         said = (f"[input] time_format {setting_text(time_format)} reads {text!r} as text, "
                 f"which states stamps in {_hours(offset)}")
-        if time_zone is not None:
-            against = _zone_setting_conflict(offset, time_zone, utc_offset, "format")
-            if against:
-                return f"{said}, but {against}"
-        elif not np.isclose(offset, utc_offset):
-            return (f"{said}, but without [input] time_zone {_read_as(utc_offset, offset)}"
-                    " if the stamps are in that clock, or remove the text from time_format "
-                    "if they are in local standard time")
+        refusal = _clock_refusal(said, offset, time_zone, utc_offset, "format",
+                                 "if the stamps are in that clock, or remove the text from "
+                                 "time_format if they are in local standard time")
+        if refusal:
+            return refusal
     for column in time_columns:
         offset = column_utc_offset(column)
         if offset is None:                        # "Zeit (MEZ)", "time_EET"
             offset = zone_offset(column)
-        if offset is not None and time_zone is not None:
-            against = _zone_setting_conflict(offset, time_zone, utc_offset, "name")
-            if against:
-                return (f"[input] time_column {column!r} is named for stamps in "
-                        f"{_hours(offset)}, but {against}")
-            continue
-        if offset is not None and not np.isclose(offset, utc_offset):
-            return (f"[input] time_column {column!r} is named for stamps in "
-                    f"{_hours(offset)}, but without [input] time_zone "
-                    f"{_read_as(utc_offset, offset)} if the name is right, or rename the "
-                    "column in a copy of the file if the stamps are in local standard time")
+        refusal = offset is not None and _clock_refusal(
+            f"[input] time_column {column!r} is named for stamps in {_hours(offset)}",
+            offset, time_zone, utc_offset, "name", "if the name is right, or rename the "
+            "column in a copy of the file if the stamps are in local standard time")
+        if refusal:
+            return refusal
     return None
 
 

@@ -164,9 +164,14 @@ def unreadable(path, error: OSError) -> InputFileError:
                           "make it and its folder readable by this user")
 
 
-def remove_stale(folder, pattern, before: float, *, keep=None) -> list[str]:
-    """Remove the entries of `folder` a killed writer left: names matching `pattern`,
-    last modified before `before`.
+def remove_stale(folder, pattern, *, keep=None) -> list[str]:
+    """Remove the entries of `folder` a killed writer left: names matching `pattern`.
+
+    Called holding the lock under which every writer of these names works (the export's
+    target, the batch's network tables): any such entry but the caller's own is then a
+    leftover, whatever its modification time (judged by that time against the caller's
+    start, a file system whose clock runs ahead kept leftovers for good and one whose
+    clock runs behind swept the entry of a writer running now; round faults27).
 
     Parameters
     ----------
@@ -174,11 +179,6 @@ def remove_stale(folder, pattern, before: float, *, keep=None) -> list[str]:
         The folder to tidy (only its own entries; symbolic links are left alone).
     pattern : re.Pattern
         Names of the leftovers (a writer's staging folders or temporary files).
-    before : float
-        Seconds since the epoch when the calling writer began: an entry modified since
-        belongs to a writer running now and is kept. ``math.inf`` where the caller holds
-        the lock under which every writer of these names works (any such entry but its
-        own is then a leftover, whatever the file system's clock says).
     keep : path-like, optional
         The caller's own entry, never removed.
 
@@ -200,8 +200,6 @@ def remove_stale(folder, pattern, before: float, *, keep=None) -> list[str]:
         if keep is not None and entry.name == Path(keep).name:
             continue
         try:
-            if entry.stat().st_mtime >= before:
-                continue
             if entry.is_dir():
                 shutil.rmtree(entry)
             else:
