@@ -156,7 +156,16 @@ def dim_rg_months(rg, potential, stamps, columns=None) -> str | None:
         return None
     dim_clear = _clear_quantile(ratio[inside[high[inside]]])
     named = [str(m) for m in labels[dim]]
-    span = named[0] if len(named) == 1 else f"{named[0]} to {named[-1]}"
+    # consecutive dim months as runs ("2021-03 to 2021-04, 2021-08"), in record order
+    runs, begin = [], None
+    for i in range(labels.size + 1):
+        if i < labels.size and dim[i]:
+            begin = i if begin is None else begin
+        elif begin is not None:
+            last = str(labels[i - 1])
+            runs.append(str(labels[begin]) + ("" if i - 1 == begin else f" to {last}"))
+            begin = None
+    span = ", ".join(runs)
     column = (columns or {}).get("rg", "rg")
     return (f"rg (column {column!r}) from {span} ({len(named)} month(s); months without "
             "the sun high are not judged): with the sun high "

@@ -68,6 +68,10 @@ def test_a_sensor_reading_the_reflected_radiation_from_july_is_named():
     assert text is not None and "'SW_in_1'" in text and "from 2021-07 to " in text
     assert "reach only 0.17 times" in text and "against 0.75" in text
     assert dim_rg_months(rg * ALBEDO, potential, index) is None
+    # two separate runs (a sensor swapped twice) are named as two spans
+    twice = ((index >= "2021-04-01") & (index < "2021-06-01")) | (index >= "2021-08-01")
+    text = dim_rg_months(np.where(twice, rg * ALBEDO, rg), potential, index)
+    assert text is not None and "from 2021-04 to 2021-05, 2021-08 to " in text
 
 
 def test_a_clock_hours_off_is_left_to_the_clock_check():
