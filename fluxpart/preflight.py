@@ -63,6 +63,9 @@ for 60 days (filled or unscreened)
 tair fitting VPD and RH as the dew point  input (tair dew point)              no
 Rg of clear mornings and afternoons at    input (rg shaded)                   no
 the same sun height far apart (shaded)
+Rg too dim for any sky (99th percentile  input (rg dim)                      no
+below half the potential radiation) in
+60 days of whole months, not in the rest
 NEE of one sign only next to 0, by day    input (nee one sign)                no
 or at night (values of one sign removed)
 a column repeating its value in every     input (tair twice, ...)             no
@@ -89,7 +92,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from . import nee_smoothing, night_uptake, rg_zeros, solar, tair_days
+from . import nee_smoothing, night_uptake, rg_dim, rg_zeros, solar, tair_days
 from .column_faults import (
     PLACEHOLDER_VARIABLES,
     censored_nee,
@@ -435,6 +438,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                             screened.index, names)
         if text:
             findings.append(Finding("input (rg zeros)", text, False))
+        # a run of months too dim for any sky: a sensor changed mid-record (round mistakes29)
+        text = rg_dim.dim_rg_months(screened["rg"].to_numpy(dtype=float), potential,
+                                    screened.index, names)
+        if text:
+            findings.append(Finding("input (rg dim)", text, False))
     if {"tair", "rg"} <= set(screened.columns):
         # an air temperature without a diurnal course (round mistakes25)
         text = flat_air_temperature(screened["tair"].to_numpy(dtype=float),

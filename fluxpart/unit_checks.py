@@ -30,6 +30,7 @@ import re
 import numpy as np
 
 from .constants import CARBON_MOLAR_MASS
+from .nee_smoothing import _MIN_PAIRS, SMOOTHED_CORRELATION, _pair_correlation
 from .variables import (
     PER_INTERVAL_UNITS,
     PPFD_PER_RG,
@@ -298,9 +299,40 @@ def _night_noise(nee: np.ndarray, converted: dict, potential) -> float:
     return max(medians) if medians else float(np.median(differences[pairs]))
 
 
+def _smoothed_night(nee: np.ndarray, converted: dict, potential) -> bool:
+    """True where the night changes of `nee` correlate as a running mean's do.
+
+    A unit is a factor on every value: NEE in mg CO2 m-2 s-1 read as µmol m-2 s-1 keeps
+    the independent random errors of separate records (Hollinger & Richardson 2005 (m)),
+    so its consecutive night changes still correlate at about -1/2; a running mean of a
+    few records (a spreadsheet's moving average, a five-record mean that skips blanks)
+    shares its errors between neighbours and gives about 0
+    (:func:`fluxpart.nee_smoothing.smoothed_nee`, the same bound and pairs). Such a
+    column is quiet from one record to the next for its smoothing, not for its unit: the
+    noise test must not call it mg CO2 (round mistakes29: the example's five-record mean
+    was refused as mg CO2 in February, a refusal naming the wrong cause, where the
+    preflight's smoothing warning names the right one). Where fewer than the smoothing
+    check's 100 pairs exist, False (the noise test decides, as before).
+    """
+    if potential is not None:
+        night = np.asarray(potential) <= 0.0
+    elif converted.get("rg") is not None:
+        with np.errstate(invalid="ignore"):
+            night = converted["rg"] < 10.0
+    else:
+        return False
+    found = _pair_correlation(np.asarray(nee, dtype=float), night, _MIN_PAIRS)
+    return found is not None and found[0] >= SMOOTHED_CORRELATION
+
+
 def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: int,
-                 potential=None):
-    """NEE in mg CO2 m-2 s-1 read as µmol m-2 s-1 (values 22.7 times too small)."""
+                 potential=None, smoothed: bool = False):
+    """NEE in mg CO2 m-2 s-1 read as µmol m-2 s-1 (values 22.7 times too small).
+
+    `smoothed` True: the whole record's night changes correlate as a running mean's
+    (:func:`_smoothed_night`), so a part's quiet noise is not judged (a month holds too
+    few night pairs to tell by itself).
+    """
     nee = converted.get("nee")
     if nee is None or not reads_as_canonical("nee", units.get("nee")):
         return None, None
@@ -319,6 +351,9 @@ def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: 
     # (|NEE| up to ~3 mg) are caught by this noise floor, quieter ones by p99 < 1.
     quiet = noise < 0.1 and p99 < 4.0
     if p99 >= 1.0 and not quiet:
+        return None, None
+    if p99 >= 1.0 and (smoothed or _smoothed_night(nee, converted, potential)):
+        # quiet only from one record to the next, as a running mean is (round mistakes29)
         return None, None
     found = (f"99 % of |values| are below {p99:.3g}" if p99 < 1.0 else
              f"consecutive night values differ by a median of only {noise:.2g}, below the "
@@ -1035,9 +1070,12 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
             if warn:
                 warnings.append(warn)
             if not refuse:
+                # a running mean's quiet noise is no unit in any month (round mistakes29)
+                smoothed = ("nee" in converted
+                            and _smoothed_night(converted["nee"], converted, potential))
                 warnings += _changed_within(
                     lambda part, sun: _nee_message(part, units, columns, interval_minutes,
-                                                   sun)[0],
+                                                   sun, smoothed)[0],
                     "nee", columns, "a flux 22.7 times too small (mg CO2 m-2 s-1)",
                     converted, potential, stamps)
         if "nee" not in refusals:

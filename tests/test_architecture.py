@@ -12,7 +12,7 @@ ROOT = Path(fluxpart.__file__).parent
 #: modules that compute a method or stage; a writer of results needs none of them
 METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "column_faults",
                   "driver_mixture", "gap_sides", "gapfill", "method_failure", "partition",
-                  "nee_smoothing", "preflight", "responses", "rg_zeros", "tair_days",
+                  "nee_smoothing", "preflight", "responses", "rg_dim", "rg_zeros", "tair_days",
                   "scenarios", "screening", "shared_records", "solar", "storage_check",
                   "uncertainty", "unit_checks", "ustar", "ustar_seasonal", "demo"}
 ORCHESTRATORS = {"pipeline", "batch", "cli", "verify", "diff", "report"}
@@ -102,7 +102,8 @@ def test_the_public_functions_of_the_0_23_modules_have_numpy_docstrings():
     lacking = []
     for name in ("night_uptake", "stamp_places", "unit_labels", "ustar_fixed",
                  "input_changes", "partition.pieces", "settings_notes", "gap_sides",
-                 "measured_months", "shared_records", "worker_match", "rg_zeros"):
+                 "measured_months", "shared_records", "worker_match", "rg_zeros",
+                 "rg_dim"):
         module = importlib.import_module(f"fluxpart.{name}")
         names = getattr(module, "__all__", None) or [
             key for key, value in vars(module).items() if not key.startswith("_")

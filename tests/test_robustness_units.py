@@ -659,3 +659,37 @@ def test_hourly_nee_written_twice_is_not_called_mg_co2():
         refusals, _ = mixup_messages(dict(converted, nee=values / 22.7), {}, columns, 30,
                                      potential, (), frame.index)
         assert "nee" in refusals and "mg CO2" in refusals["nee"]
+
+
+def test_a_five_record_mean_that_skips_blanks_is_not_called_mg_co2():
+    """Known-truth recovery (round mistakes29) on the invented Quillmoor site: NEE as a
+    centred five-record mean that skips blanks (a spreadsheet's moving average) is quiet
+    from one night record to the next for its smoothing, and was refused as mg CO2 m-2
+    s-1 in February (the example: a unit "changed within the record", the wrong cause).
+    A unit is a factor on every value and keeps the independent errors of separate
+    records, whose consecutive changes correlate at -1/2 (Hollinger & Richardson 2005
+    (m)); the mean's correlate near 0, so its quiet noise is no unit: no refusal, no month
+    named (the preflight's smoothing warning names it). The same mean in mg CO2 (22.7
+    times smaller: 1 µmol CO2 = 44.01 µg, IUPAC molar mass) and the record in mg CO2 are
+    still refused."""
+    import pandas as pd
+
+    from fluxpart import demo
+    from fluxpart.io import _potential
+
+    frame = demo.site_year(0)[0]
+    names = ("nee", "rg", "tair", "vpd", "rh")
+    converted = {n: frame[n].to_numpy(float) for n in names}
+    nee = converted["nee"]
+    mean = pd.Series(nee).rolling(5, center=True, min_periods=1).mean().to_numpy().copy()
+    mean[np.isnan(nee)] = np.nan
+    potential = _potential(frame.index, demo.site(), 30)
+    columns = {n: n for n in names}
+    refusals, warnings = mixup_messages(dict(converted, nee=mean), {}, columns, 30,
+                                        potential, (), frame.index)
+    assert "nee" not in refusals
+    assert not any("'nee' (nee): in " in w for w in warnings)
+    for values in (mean, nee):
+        refusals, _ = mixup_messages(dict(converted, nee=values / 22.7), {}, columns, 30,
+                                     potential, (), frame.index)
+        assert "nee" in refusals and "mg CO2" in refusals["nee"]
