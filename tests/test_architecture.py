@@ -89,6 +89,25 @@ def test_readme_output_files_name_every_table_a_result_folder_holds():
     assert "`parameters_*.parquet`" in section and "`manifest.json`" in section
 
 
+def test_readme_methods_table_states_the_unresolved_rref_limit_of_both_methods():
+    """Docs against the code (review33): 0.25.0's one change that can move numbers (Rref
+    windows with a standard error above NEE's plausible range dropped by the nighttime
+    method and no anchor or resolved fit in the daytime one, round trial14) was in the
+    changelog only; the README's methods table, which says what each method does, did not
+    name it. Its rows must give the limit the code applies."""
+    from fluxpart.partition import daytime, nighttime
+
+    text = (ROOT.parent / "README.md").read_text(encoding="utf-8")
+    rows = {line.split("|")[1].strip(): line for line in text.splitlines()
+            if line.startswith("| nighttime partitioning |")
+            or line.startswith("| daytime partitioning |")}
+    assert set(rows) == {"nighttime partitioning", "daytime partitioning"}
+    assert nighttime.RREF_SE_LIMIT == daytime._MAX_CURVE_RESPIRATION
+    limit = f"standard error above {nighttime.RREF_SE_LIMIT:g} µmol m-2 s-1"
+    for name, row in rows.items():
+        assert limit in row and "since 0.25.0" in row, name
+
+
 def test_the_public_functions_of_the_0_23_modules_have_numpy_docstrings():
     """The house rule (DEVELOPERS.md, Rules of the house): each method's docstring in the
     numpydoc layout (numpydoc's docstring standard, common practice) with its
