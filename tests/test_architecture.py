@@ -108,6 +108,29 @@ def test_readme_methods_table_states_the_unresolved_rref_limit_of_both_methods()
         assert limit in row and "since 0.25.0" in row, name
 
 
+def test_readme_installs_fluxpart_from_the_checkout_not_by_its_name():
+    """The README tells a user with a checkout how to install (review33): it said
+    ``pip install "fluxpart[all]"``, which pip reads as a requirement by name and looks up
+    on the package index (PEP 508: a name with extras; a path such as ``".[all]"`` installs
+    the local project), where the name belongs to another project (m). Every ``pip
+    install`` the README shows must install a path; checked with ``packaging``, the
+    PEP 508 parser pip uses."""
+    from packaging.requirements import InvalidRequirement, Requirement
+
+    text = (ROOT.parent / "README.md").read_text(encoding="utf-8")
+    commands = re.findall(r"pip install ((?:-[\w-]+ )*)([^`\s]+)", text)
+    assert len(commands) >= 2
+    by_name = []
+    for _, target in commands:
+        target = target.strip("'\"")
+        try:
+            Requirement(target)
+        except InvalidRequirement:
+            continue                          # a path: ".", ".[all]", "./fluxpart"
+        by_name.append(target)
+    assert not by_name, by_name
+
+
 def test_the_public_functions_of_the_0_23_modules_have_numpy_docstrings():
     """The house rule (DEVELOPERS.md, Rules of the house): each method's docstring in the
     numpydoc layout (numpydoc's docstring standard, common practice) with its
