@@ -65,3 +65,15 @@ def test_the_statement_gives_the_months_and_the_independent_trials_as_the_readme
     assert f"NEE in {trials.group(3)} %" in uncertainty.CALIBRATION_CHECK
     # and the README's own arithmetic: 64 of 77 is 83 % to the whole percent
     assert round(100 * int(trials.group(1)) / int(trials.group(2))) == int(trials.group(3))
+
+
+def test_the_contributor_guide_labels_one_block_of_figures_current_naming_this_release():
+    """DEVELOPERS.md's calibration section labelled two blocks "Current figures" (0.24.0's
+    and 0.21.0's) and neither named 0.25.0, whose changelog says every figure is 0.24.0's
+    (review33). One block is current, and its label names the running release."""
+    text = (Path(__file__).resolve().parents[1] / "DEVELOPERS.md").read_text(encoding="utf-8")
+    labels = [" ".join(text[i:i + 200].split()) for i in
+              [m.start() for m in re.finditer(r"\*\*Current figures", text)]]
+    assert len(labels) == 1, labels
+    label = labels[0][:labels[0].index("**", 2) + 2]
+    assert fluxpart.__version__ in label, label
