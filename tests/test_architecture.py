@@ -131,6 +131,21 @@ def test_readme_installs_fluxpart_from_the_checkout_not_by_its_name():
     assert not by_name, by_name
 
 
+def test_readme_names_the_checks_of_round_mistakes28_with_their_bounds():
+    """Docs against the code (review33): 0.25.0's two new preflight warnings, NEE written as
+    a running mean (`nee_smoothing`) and tair whole days away from the humidity columns
+    (`tair_days`), were in the changelog only, while the README lists every other
+    preflight check with its bound. The README must name both with the bounds the code
+    applies."""
+    from fluxpart import nee_smoothing, tair_days
+
+    text = " ".join((ROOT.parent / "README.md").read_text(encoding="utf-8").split())
+    assert (f"correlate at {nee_smoothing.SMOOTHED_CORRELATION:g} or above over "
+            f"{nee_smoothing._MIN_PAIRS} night pairs") in text
+    assert f"start: {nee_smoothing._PART_MIN_PAIRS} pairs" in text
+    assert f"at a correlation of {tair_days.MIN_CORRELATION:g} or more" in text
+
+
 def test_the_public_functions_of_the_0_23_modules_have_numpy_docstrings():
     """The house rule (DEVELOPERS.md, Rules of the house): each method's docstring in the
     numpydoc layout (numpydoc's docstring standard, common practice) with its
