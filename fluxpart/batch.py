@@ -171,8 +171,11 @@ _FAILURE_COLUMNS = {
     "kind": ("", "'input': bad input or settings; 'internal': a fault of fluxpart or of the "
              "cluster"),
 }
-_SUMMARY_COLUMNS = ("site", "year", "nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime",
-                    "reco_daytime", "ustar_threshold", "complete")
+#: The batch summary's columns: NEE with its stated 95 % interval (review33: the sites'
+#: budgets were printed side by side without any, while `run` prints each site's).
+_SUMMARY_COLUMNS = ("site", "year", "nee", "nee_ci95_low", "nee_ci95_high", "gpp_nighttime",
+                    "reco_nighttime", "gpp_daytime", "reco_daytime", "ustar_threshold",
+                    "complete")
 
 
 @dataclass(frozen=True)
@@ -1883,8 +1886,9 @@ def _summary(report: BatchReport) -> str:
              f"{report.skipped} up to date (skipped), {report.failed} failed"]
     if len(report.network):
         columns = [c for c in _SUMMARY_COLUMNS if c in report.network.columns]
-        lines += ["", "Annual budgets [g C m-2; NEE < 0 is net uptake; ustar_threshold in "
-                  "m s-1]:",
+        lines += ["", "Annual budgets [g C m-2; NEE < 0 is net uptake; nee_ci95_low/high: "
+                  "its stated 95 % interval, systematic measurement errors not included (see "
+                  "the README's cautions); ustar_threshold in m s-1]:",
                   report.network[columns].to_string(
                       index=False, float_format=lambda v: f"{v:9.1f}",
                       # u* thresholds in m s-1 need their three decimals (0.177, not 0.2)

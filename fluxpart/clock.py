@@ -873,7 +873,9 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
                              f"middles, not {time_marks}s)")
     elif abs(abs(shift) - interval_minutes) <= 10.0 or abs(abs(shift)
                                                            - interval_minutes / 2) <= 5.0:
-        fixes.append("the stamp convention (interval start, middle or end: [input] time_marks)")
+        # no reader record: a frame given to fluxpart.process, whose index the user sets
+        fixes.append("the stamp convention (interval start, middle or end: [input] time_marks; "
+                     "a frame given to fluxpart.process needs an index of interval starts)")
     if len(fixes) > 1 and not whole_hours:
         fixes = fixes[1:] + fixes[:1]                        # a stamp convention first
     zone_gap = longitude / 15.0 - utc_offset     # 15° per hour from the zone's meridian

@@ -36,8 +36,8 @@ recalled from memory are marked "(m)" in :data:`STANDARD_NAMES`); NEE, Reco and 
 have none we could confirm, so they carry a ``long_name`` only, and the downward
 net flux ``nep`` = -NEE carries the CF name of the net land carbon flux.
 
-Needs the ``netcdf`` extra (xarray and h5netcdf; netCDF4 is used instead when it is
-installed).
+Needs the ``netcdf`` extra (xarray, h5netcdf and h5py; netCDF4 is used instead when it
+is installed).
 
 References
 ----------
@@ -130,14 +130,19 @@ def _xarray():
 
 
 def _engine() -> str:
-    for module, engine in (("netCDF4", "netcdf4"), ("h5netcdf", "h5netcdf")):
+    # h5netcdf reads and writes through h5py, which its recent releases no longer install
+    # themselves (their package metadata lists h5py under an extra of their own): without
+    # it the write failed deep in xarray with a traceback
+    for modules, engine in ((("netCDF4",), "netcdf4"), (("h5netcdf", "h5py"), "h5netcdf")):
         try:
-            __import__(module)
+            for module in modules:
+                __import__(module)
         except ImportError:
             continue
         return engine
-    raise FluxpartError('writing NetCDF needs h5netcdf or netCDF4; install the netcdf extra: '
-                        'pip install "fluxpart[netcdf]"')
+    raise FluxpartError('writing NetCDF needs netCDF4, or h5netcdf together with h5py (recent '
+                        'h5netcdf releases do not install h5py themselves); install the netcdf '
+                        'extra: pip install "fluxpart[netcdf]" (or pip install h5py)')
 
 
 def _interval_minutes(index: pd.DatetimeIndex) -> int:

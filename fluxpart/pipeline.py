@@ -427,7 +427,7 @@ def _refuse(verdict, findings, config) -> None:
     text = "; ".join(clock_problems + fatal)
     if clock_problems:
         raise ConfigError(f"{text} (to process anyway, set [processing] clock_check = "
-                          "\"warn\")")
+                          "\"warn\", in Python Config(clock_check=\"warn\"))")
     raise InsufficientDataError(f"{text} (fluxpart check lists every problem)")
 
 

@@ -124,6 +124,11 @@ _PATH_FREE = ("format", "caution", "site", "config", "seed", "warnings")
 #: content is checked by its SHA-256 before the rerun, so a difference here is a renamed
 #: copy (the joint SHA-256 of several files covers their names too).
 _NAME_FIELDS = ("provenance.reader.files", "provenance.input.sha256")
+#: Manifest fields that state what the writing release's benchmarks measured
+#: (:data:`fluxpart.uncertainty.CALIBRATION_CHECK`, restated at each release): they
+#: describe the release, not the result's numbers, so a difference is a note (review33:
+#: restating it made every earlier result "NOT reproduced" on this field alone).
+_RELEASE_FIELDS = ("provenance.uncertainty.checked",)
 
 
 @dataclass(frozen=True)
@@ -1586,6 +1591,11 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                 # a renamed copy of the input: its content is checked by SHA-256
                 notes.append(f"{found.column}: the file names differ (stored {found.stored}, "
                              f"now {found.recomputed}); their content is the recorded one")
+            elif found.column in _RELEASE_FIELDS:
+                notes.append(f"{found.column}: the writing release's statement of how its "
+                             "intervals were checked differs from this code's (each release "
+                             "states its own benchmarks; it is no number of this result): "
+                             f"stored {found.stored}")
             elif found.kind == "rounding":
                 rounding.append(found)
             else:

@@ -89,6 +89,63 @@ def test_readme_output_files_name_every_table_a_result_folder_holds():
     assert "`parameters_*.parquet`" in section and "`manifest.json`" in section
 
 
+def test_readme_methods_table_states_the_unresolved_rref_limit_of_both_methods():
+    """Docs against the code (review33): 0.25.0's one change that can move numbers (Rref
+    windows with a standard error above NEE's plausible range dropped by the nighttime
+    method and no anchor or resolved fit in the daytime one, round trial14) was in the
+    changelog only; the README's methods table, which says what each method does, did not
+    name it. Its rows must give the limit the code applies."""
+    from fluxpart.partition import daytime, nighttime
+
+    text = (ROOT.parent / "README.md").read_text(encoding="utf-8")
+    rows = {line.split("|")[1].strip(): line for line in text.splitlines()
+            if line.startswith("| nighttime partitioning |")
+            or line.startswith("| daytime partitioning |")}
+    assert set(rows) == {"nighttime partitioning", "daytime partitioning"}
+    assert nighttime.RREF_SE_LIMIT == daytime._MAX_CURVE_RESPIRATION
+    limit = f"standard error above {nighttime.RREF_SE_LIMIT:g} µmol m-2 s-1"
+    for name, row in rows.items():
+        assert limit in row and "since 0.25.0" in row, name
+
+
+def test_readme_installs_fluxpart_from_the_checkout_not_by_its_name():
+    """The README tells a user with a checkout how to install (review33): it said
+    ``pip install "fluxpart[all]"``, which pip reads as a requirement by name and looks up
+    on the package index (PEP 508: a name with extras; a path such as ``".[all]"`` installs
+    the local project), where the name belongs to another project (m). Every ``pip
+    install`` the README shows must install a path; checked with ``packaging``, the
+    PEP 508 parser pip uses."""
+    from packaging.requirements import InvalidRequirement, Requirement
+
+    text = (ROOT.parent / "README.md").read_text(encoding="utf-8")
+    commands = re.findall(r"pip install ((?:-[\w-]+ )*)([^`\s]+)", text)
+    assert len(commands) >= 2
+    by_name = []
+    for _, target in commands:
+        target = target.strip("'\"")
+        try:
+            Requirement(target)
+        except InvalidRequirement:
+            continue                          # a path: ".", ".[all]", "./fluxpart"
+        by_name.append(target)
+    assert not by_name, by_name
+
+
+def test_readme_names_the_checks_of_round_mistakes28_with_their_bounds():
+    """Docs against the code (review33): 0.25.0's two new preflight warnings, NEE written as
+    a running mean (`nee_smoothing`) and tair whole days away from the humidity columns
+    (`tair_days`), were in the changelog only, while the README lists every other
+    preflight check with its bound. The README must name both with the bounds the code
+    applies."""
+    from fluxpart import nee_smoothing, tair_days
+
+    text = " ".join((ROOT.parent / "README.md").read_text(encoding="utf-8").split())
+    assert (f"correlate at {nee_smoothing.SMOOTHED_CORRELATION:g} or above over "
+            f"{nee_smoothing._MIN_PAIRS} night pairs") in text
+    assert f"start: {nee_smoothing._PART_MIN_PAIRS} pairs" in text
+    assert f"at a correlation of {tair_days.MIN_CORRELATION:g} or more" in text
+
+
 def test_the_public_functions_of_the_0_23_modules_have_numpy_docstrings():
     """The house rule (DEVELOPERS.md, Rules of the house): each method's docstring in the
     numpydoc layout (numpydoc's docstring standard, common practice) with its

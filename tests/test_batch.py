@@ -988,3 +988,26 @@ def test_linked_site_configs_read_the_input_beside_their_own_link(tmp_path):
         batch_reads = read_site_config(site_config).input_paths
         run_reads = read_site_config(tmp_path / name / "site.toml").input_paths
         assert batch_reads == run_reads == (tmp_path / name / "tower.csv",)
+
+
+def test_the_summary_prints_each_site_nee_with_its_stated_interval(tmp_path):
+    """review33: ``fluxpart batch`` printed the sites' annual NEE side by side without any
+    interval (``run`` prints each site's), inviting a comparison of sums whose 95 %
+    intervals overlap. The summary now gives ``nee_ci95_low`` and ``nee_ci95_high`` beside
+    ``nee``, as the network table stores them (sum -/+ 1.96 sigma, the 97.5th percentile
+    of the standard normal, common practice; invented values)."""
+    from scipy.stats import norm
+
+    sigma = 10.0
+    network = pd.DataFrame({"site": ["a", "b"], "year": [2021, 2021], "nee": [-293.4, -249.7]})
+    network["nee_ci95_low"] = network["nee"] - norm.ppf(0.975) * sigma
+    network["nee_ci95_high"] = network["nee"] + norm.ppf(0.975) * sigma
+    report = batch.BatchReport(out=tmp_path, outcomes=(), network=network,
+                               failures=pd.DataFrame())
+    summary = batch._summary(report)
+    header = next(line for line in summary.splitlines() if "nee_ci95_low" in line
+                  and "site" in line)
+    assert header.split() == ["site", "year", "nee", "nee_ci95_low", "nee_ci95_high"]
+    row = next(line for line in summary.splitlines() if line.split()[:1] == ["a"])
+    assert row.split()[2:] == ["-293.4", "-313.0", "-273.8"]
+    assert "stated 95 % interval" in summary

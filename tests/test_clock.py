@@ -7,6 +7,8 @@ known clock error. A check that agreed with itself only would pass on its own mi
 here the truth is set by the reference library.
 """
 
+import re
+
 import numpy as np
 import pandas as pd
 import pytest
@@ -451,3 +453,25 @@ def test_one_month_off_by_a_non_clock_step_is_not_named():
     off = synthetic_rg(45.0, 10.0, 1.0, interval_minutes=30, seed=3, clock_shift_minutes=45.0)
     rg = on_time.where(on_time.index.month != 7, off)
     assert _check(rg, 45.0, 10.0, 1.0, 30).problems == ()
+
+
+def test_a_frame_stamped_at_interval_ends_is_told_the_fix_in_python_terms():
+    """review33: ``fluxpart.process`` on a frame indexed by interval ends (a logger's
+    stamps) is refused by the clock check, as it should be (Rg 30 min after the sun on
+    known-truth invented data), but the fix named only config-file settings, ``[input]
+    time_marks`` and ``[processing] clock_check``, which a frame has not. The message now
+    also says what a frame needs (an index of interval starts) and the Python setting."""
+    import fluxpart
+    from fluxpart import demo
+    from fluxpart.errors import ConfigError
+
+    frame, _ = demo.site_year(seed=0)
+    ends = frame.copy()
+    ends.index = ends.index + pd.Timedelta(minutes=30)
+    with pytest.raises(ConfigError) as caught:
+        fluxpart.process(ends, demo.site())
+    message = str(caught.value)
+    # the shift is estimated to within about 2 min (bench_clock.py: worst error 2.3 min)
+    assert re.search(r"Rg comes (29|30|31) min later than the sun", message)
+    assert "a frame given to fluxpart.process needs an index of interval starts" in message
+    assert 'Config(clock_check="warn")' in message

@@ -315,3 +315,25 @@ def test_readme_counts_of_negative_nighttime_gpp_are_the_demo_years():
     assert stated == [int(negative.sum()), len(series), int((negative & night).sum())]
     # at night about half the records (an unbiased model and symmetric errors)
     assert 0.3 < (negative & night).sum() / night.sum() < 0.7
+
+
+def test_compare_with_truth_says_whether_each_interval_holds_the_truth():
+    """Known-truth recovery on invented data (review33): the demo printed each estimate's
+    error against the truth but not whether its stated 95 % interval held it, and on the
+    demo year both daytime intervals miss (a user sees a 95 % interval and a truth outside
+    it with no word). The flag is low <= truth <= high of the annual columns, None where
+    the result has no interval; the truth is the sum of the invented fluxes in g C m-2
+    (1 umol CO2 s-1 = 12.011e-6 g C s-1, IUPAC standard atomic weight of carbon)."""
+    index = pd.date_range("2021-01-01", periods=48, freq="30min")
+    truth = pd.DataFrame({"gpp": 2.0, "reco": 1.0, "nee": -1.0}, index=index)
+    true_nee = -1.0 * 48 * 1800 * CARBON_MOLAR_MASS * 1e-6        # g C m-2
+    annual = pd.DataFrame({"nee": [true_nee + 3.0], "nee_ci95_low": [true_nee + 1.0],
+                           "nee_ci95_high": [true_nee + 5.0], "reco_daytime": [0.9 * 48 * 1800
+                                                                             * 12.011e-6]},
+                          index=pd.Index([2021], name="year"))
+    table = demo.compare_with_truth(annual, truth)
+    assert table.loc[(2021, "nee"), "error"] == pytest.approx(3.0)
+    assert table.loc[(2021, "nee"), "truth_in_95"] is False
+    assert table.loc[(2021, "reco_daytime"), "truth_in_95"] is None
+    annual["nee_ci95_low"] = true_nee - 1.0
+    assert demo.compare_with_truth(annual, truth).loc[(2021, "nee"), "truth_in_95"] is True

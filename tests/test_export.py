@@ -536,3 +536,42 @@ def test_a_budget_year_from_july_has_its_own_bounds():
     assert variables["nee_annual_mean"][1][0] == pytest.approx(-100e-3 / (365 * 86400.0))
     assert variables["nee_annual_sum_ci95_low"][1][0] == -109.8
     assert variables["share_present_annual"][1][0] == 1.0
+
+
+def test_without_h5py_the_export_is_one_error_line_and_nothing_written(written_demo, tmp_path,
+                                                                       monkeypatch, capsys):
+    """h5netcdf without h5py (its recent releases install h5py only under an extra of their
+    own) and no netCDF4: one ``error:`` line naming h5py, exit 2, no file; before review33
+    the write failed inside xarray with an ImportError traceback (fresh ``fluxpart[all]``)."""
+    import sys
+
+    _, folder = written_demo
+    monkeypatch.setitem(sys.modules, "h5py", None)       # import h5py raises ImportError
+    monkeypatch.setitem(sys.modules, "netCDF4", None)
+    target = tmp_path / "site.nc"
+    assert main(["export", str(folder), "--netcdf", str(target)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error:") and "h5py" in err[0]
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_the_netcdf_extra_names_h5py_where_h5netcdf_leaves_it_to_an_extra():
+    """The installed h5netcdf's own package metadata (PEP 508 requirements, read with
+    importlib.metadata and packaging) decides: where it requires h5py only under an extra,
+    fluxpart's ``netcdf`` extra must name h5py itself, or ``pip install fluxpart[netcdf]``
+    installs an export that cannot write (review33)."""
+    import importlib.metadata as metadata
+    import tomllib
+
+    from packaging.requirements import Requirement
+
+    requirements = [Requirement(text) for text in metadata.requires("h5netcdf") or []]
+    h5py = [r for r in requirements if r.name == "h5py"]
+    unconditional = any(r.marker is None or r.marker.evaluate({"extra": ""}) for r in h5py)
+    root = Path(__file__).resolve().parents[1]
+    extras = tomllib.loads((root / "pyproject.toml").read_text())["project"][
+        "optional-dependencies"]
+    named = {Requirement(text).name for text in extras["netcdf"]}
+    assert "h5netcdf" in named
+    if not unconditional:
+        assert "h5py" in named

@@ -1109,3 +1109,22 @@ def test_a_result_of_a_fixed_threshold_the_site_config_did_not_state_is_rerun(tm
     assert report.reproduced and report.exit_code == 0
     assert any('ustar_method = "fixed" without ustar_threshold' in note and "0.2 m s-1" in note
                for note in report.notes)
+
+
+def test_another_release_statement_of_the_checked_coverage_is_a_note(bundle, monkeypatch,
+                                                                     capsys):
+    """The manifest's ``provenance.uncertainty.checked`` states the writing release's
+    benchmark coverage and is restated at each release (review33): verify of an earlier
+    release's result by later code keeps the verdict on the numbers (bit-identical, exit 0)
+    and notes the two statements; before review33 the changed text alone made the result
+    "NOT reproduced" (exit 1). Its tables are still compared bit for bit."""
+    from fluxpart import uncertainty
+
+    stored = json.loads((bundle / "out" / "manifest.json").read_text())
+    assert stored["provenance"]["uncertainty"]["checked"] == uncertainty.CALIBRATION_CHECK
+    monkeypatch.setattr(uncertainty, "CALIBRATION_CHECK",
+                        "fluxpart 9.9.9 on other generated site-years: other figures")
+    assert main(["verify", str(bundle / "out")]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("bit-identical")
+    assert "note: provenance.uncertainty.checked" in out and "9.9.9" not in out
