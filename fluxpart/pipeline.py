@@ -26,7 +26,6 @@ settings to the stage functions and assembles their outputs.
 from __future__ import annotations
 
 import dataclasses
-import datetime
 import logging
 import warnings as _warnings
 from pathlib import Path
@@ -39,6 +38,7 @@ from . import (
     audit,
     budget,
     budget_warnings,
+    canonical_frame,
     clock,
     gap_sides,
     gapfill,
@@ -57,7 +57,6 @@ from . import (
     ustar_fixed,
     ustar_seasonal,
 )
-from ._validate import unique_columns
 from .config import Config
 from .errors import (
     ConfigError,
@@ -66,14 +65,11 @@ from .errors import (
     ImplausibleValueError,
     InputFileError,
     InsufficientDataError,
-    MissingColumnError,
-    SpacingError,
 )
 from .fingerprint import load_blas_libraries
 from .partition import daytime, nighttime, pieces, respiration_form, temperature_choice
 from .result import Result, load  # noqa: F401  (re-exported: fluxpart.pipeline.load)
 from .site import Site
-from .variables import REQUIRED, VARIABLES
 
 __all__ = ["Result", "check_record", "load", "process", "process_site_config",
            "screening_summary", "stage_count"]
@@ -101,122 +97,6 @@ _METHOD_LABELS = {gapfill.METHOD_UNFILLED: "unfilled", gapfill.METHOD_MEASURED: 
                   getattr(gapfill, "METHOD_INTERPOLATED", 4): "interpolated"}
 
 
-def _config(config) -> Config:
-    """The settings given, or the published defaults; anything else is refused."""
-    if config is None:
-        return Config()
-    if not isinstance(config, Config):
-        raise ConfigError(f"config must be a fluxpart.Config, got {type(config).__name__}; "
-                          "build one with fluxpart.Config(seed=1, ...) or "
-                          "fluxpart.Config.from_toml(path)")
-    return config
-
-
-def _require_columns(frame: pd.DataFrame) -> None:
-    """Refuse a frame without the required columns, naming the columns it has."""
-    if isinstance(frame.columns, pd.MultiIndex):
-        raise MissingColumnError(f"the frame's column labels have {frame.columns.nlevels} "
-                                 "levels; give one level of canonical names (nee, rg, ...), "
-                                 "e.g. with frame.droplevel(1, axis=1)")
-    unique_columns([column for column in frame.columns if column in VARIABLES])
-    missing = [name for name in REQUIRED if name not in frame.columns]
-    if missing == ["vpd"] and "rh" in frame.columns:
-        raise MissingColumnError("column 'vpd' is missing; derive it from 'rh' and 'tair' with "
-                                 "fluxpart.variables.vpd_from_rh, or read the file with "
-                                 "fluxpart.read_config, which does so")
-    if missing:
-        given = [str(column) for column in frame.columns]
-        renames = [f"{column!r} -> {name!r}" for name in missing for column in given
-                   if column.strip().lower() == name]
-        hint = (f"; names are case-sensitive: rename {', '.join(renames)}" if renames else "")
-        raise MissingColumnError(f"required column(s) {', '.join(map(repr, missing))} missing; "
-                                 f"the frame has: {', '.join(given) or 'no columns'}{hint}")
-
-
-def _validate(frame: pd.DataFrame) -> int:
-    """Check the canonical frame once; return its interval [minutes]."""
-    if not isinstance(frame, pd.DataFrame):
-        raise FluxpartError(f"process() needs a pandas DataFrame, got {type(frame).__name__}")
-    if not isinstance(frame.index, pd.DatetimeIndex):
-        raise SpacingError("the frame's index must be a DatetimeIndex of interval starts "
-                           f"(local standard time), got {type(frame.index).__name__}")
-    if frame.index.tz is not None:
-        raise SpacingError(f"the frame's index carries the time zone {frame.index.tz}; use "
-                           "tz-naive local standard time and give Site.utc_offset")
-    _require_columns(frame)
-    for name in frame.columns:
-        if not pd.api.types.is_numeric_dtype(frame[name]):
-            raise FluxpartError(f"column {name!r} has dtype {frame[name].dtype}; expected numbers")
-    for name in REQUIRED:
-        if frame[name].isna().all():
-            raise MissingColumnError(f"column {name!r} ({VARIABLES[name].description}) holds no "
-                                     "values at all; every stage needs some measured records "
-                                     "of it (check the column mapping and the missing codes)")
-    if len(frame) < 2:
-        raise SpacingError("the frame has fewer than two records")
-    steps = np.diff(frame.index.to_numpy().astype("datetime64[s]").astype(np.int64))
-    if (steps <= 0).any():
-        row = int(np.flatnonzero(steps <= 0)[0]) + 1
-        raise SpacingError(f"timestamps are not strictly increasing at row {row} "
-                           f"({frame.index[row]})")
-    if not (steps == steps[0]).all() or steps[0] not in (1800, 3600):
-        row = int(np.flatnonzero(steps != steps[0])[0]) + 1 if not (steps == steps[0]).all() else 1
-        raise SpacingError(f"records must be regularly spaced by 30 or 60 minutes (insert NaN "
-                           f"rows for missing stamps); found a step of "
-                           f"{steps[min(row, len(steps)) - 1] / 60:g} minutes at row {row}")
-    return int(steps[0] // 60)
-
-
-def _prepare(frame, site: Site) -> tuple:
-    """Bring a caller's frame to the canonical form; return it and notes on what changed.
-
-    A tz-aware index is converted to the site's local standard time (UTC +
-    ``site.utc_offset``, no daylight saving) and made tz-naive; columns that are not
-    canonical variables are left out; numeric columns become float64 (missing values
-    and infinities NaN). The caller's frame is not modified.
-    """
-    notes = []
-    if not isinstance(frame, pd.DataFrame):
-        return frame, notes
-    if isinstance(frame.index, pd.DatetimeIndex) and frame.index.tz is not None:
-        zone = datetime.timezone(datetime.timedelta(hours=site.utc_offset))
-        notes.append(f"the index carried the time zone {frame.index.tz}; converted to local "
-                     f"standard time UTC{site.utc_offset:+g} h (Site.utc_offset)")
-        frame = frame.set_axis(frame.index.tz_convert(zone).tz_localize(None), axis=0)
-    _require_columns(frame)        # before other columns are left out: name them all
-    unknown = [c for c in frame.columns if c not in VARIABLES]
-    if unknown:
-        notes.append(f"column(s) {', '.join(map(repr, map(str, unknown)))} are not canonical "
-                     f"variables and were ignored (canonical: {', '.join(VARIABLES)})")
-        frame = frame.drop(columns=unknown)
-    # float64, as the file reader gives them: float32, float16, nullable (Float64, Int64)
-    # or Arrow columns were otherwise echoed in the time series with their own type
-    # (a float16 rh written as Parquet halffloat), so the tables' schema followed the
-    # caller's dtypes; a missing value (pd.NA) becomes NaN
-    widen = {name: "float64" for name in frame.columns
-             if frame[name].dtype != np.float64 and pd.api.types.is_numeric_dtype(frame[name])}
-    if widen:
-        frame = frame.astype(widen)
-    # +-inf, as the file reader does, is missing: kept, it leaked NumPy's "divide by zero"
-    # warnings and stood in the time series beside finite filled values
-    infinite = {name: int(np.isinf(frame[name].to_numpy()).sum()) for name in frame.columns
-                if frame[name].dtype == np.float64}
-    infinite = {name: count for name, count in infinite.items() if count}
-    if infinite:
-        notes.append("infinite values read as missing: " + ", ".join(
-            f"{count} in {name!r}" for name, count in infinite.items()))
-        frame = frame.replace([np.inf, -np.inf], np.nan)
-    return frame, notes
-
-
-def _budget_record(frame: pd.DataFrame, config: Config, interval: int) -> tuple:
-    """The frame on its budget years (:func:`fluxpart.timestamps.budget_year_edges`): a
-    fragment of less than a day left out, edge records up to a day added as gaps; and
-    the notes saying so."""
-    index, notes = timestamps.budget_year_edges(frame.index, interval, config.year_start)
-    return (frame.reindex(index) if notes else frame), notes
-
-
 def _labelled(timeseries: pd.DataFrame) -> pd.DataFrame:
     """Rejection reason, fill method and fill qualities as labelled (dictionary) columns."""
     labels = {"rejection_reason": screening.REASON_CODES, "nee_fill_method": _METHOD_LABELS}
@@ -224,19 +104,6 @@ def _labelled(timeseries: pd.DataFrame) -> pd.DataFrame:
     return timeseries.assign(**{column: schema.as_labels(timeseries[column].to_numpy(), names)
                                 for column, names in labels.items()
                                 if column in timeseries.columns})
-
-
-def _temperature(config: Config, frame: pd.DataFrame) -> str:
-    driver = config.respiration_driver
-    if driver != "auto" and driver not in frame.columns:
-        raise ConfigError(f"[processing] respiration_driver = {driver!r}, but the input has no "
-                          f"column {driver!r}; map it in [input.columns] or use 'tair'")
-    if driver != "auto" and not np.isfinite(frame[driver].to_numpy(dtype=float)).any():
-        # else both methods fail on it, and the error blames the night NEE
-        raise ConfigError(f"[processing] respiration_driver = {driver!r}, but column {driver!r} "
-                          "has no value (every record empty or a missing code); set "
-                          "respiration_driver = 'auto' or the other temperature")
-    return driver
 
 
 def _chosen_temperature(driver, index, screened, is_night, threshold, config):
@@ -401,10 +268,10 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
     findings : list of fluxpart.preflight.Finding
         Conditions that make a stage fail (``fatal``) or fall back.
     """
-    config = _config(config)
-    frame, _ = _prepare(frame, site)
-    interval = _validate(frame)
-    frame, edges = _budget_record(frame, config, interval)
+    config = canonical_frame.checked_config(config)
+    frame, _ = canonical_frame.prepare(frame, site)
+    interval = canonical_frame.validate(frame)
+    frame, edges = canonical_frame.budget_record(frame, config, interval)
     geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     verdict, findings = _clock_and_preflight(
         frame, site, config, interval, geometry, is_night, screens,
@@ -455,10 +322,10 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     thresholds : pandas.DataFrame
         The u* table of :attr:`Result.ustar`.
     """
-    config = _config(config)
-    frame, _ = _prepare(frame, site)
-    interval = _validate(frame)
-    frame, _ = _budget_record(frame, config, interval)
+    config = canonical_frame.checked_config(config)
+    frame, _ = canonical_frame.prepare(frame, site)
+    interval = canonical_frame.validate(frame)
+    frame, _ = canonical_frame.budget_record(frame, config, interval)
     _, is_night, screens = _geometry_and_screening(frame, site, config, interval)
     table, _, _, _ = _ustar_thresholds(frame, screens.screened, is_night, site, config)
     # the reasons decided after the u* threshold (low u*, mornings after calm nights) are
@@ -672,18 +539,18 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         (a subclass) for bad input or settings, or too little data for both partitioning
         methods (one that cannot fit leaves its columns NaN, with a warning).
     """
-    config = _config(config)
+    config = canonical_frame.checked_config(config)
     if not isinstance(site, Site):
         raise ConfigError(f"site must be a fluxpart.Site, got {type(site).__name__}")
     load_blas_libraries()       # now, while memory is free (fingerprint.load_blas_libraries)
     # variables a site config's [input] accept_units kept as they are (a frame of the reader)
     accepted = tuple(getattr(frame, "attrs", {}).get("accept_units", ()))
-    frame, notes = _prepare(frame, site)
-    interval = _validate(frame)
-    frame, edges = _budget_record(frame, config, interval)
+    frame, notes = canonical_frame.prepare(frame, site)
+    interval = canonical_frame.validate(frame)
+    frame, edges = canonical_frame.budget_record(frame, config, interval)
     frame = frame.copy()
     frame.index = frame.index.rename("time")
-    temperature = _temperature(config, frame)
+    temperature = canonical_frame.respiration_setting(config, frame)
     warnings = [f"input: {text}" for text in [*(provenance or {}).get("reader", {}).get(
         "warnings", []), *notes]] + [f"budget year: {text}" for text in edges]
     warnings.extend(gapfill.event_notes(frame.index, config.events))
