@@ -39,7 +39,6 @@ from . import (
     budget,
     budget_warnings,
     canonical_frame,
-    clock,
     gap_sides,
     gapfill,
     method_failure,
@@ -47,8 +46,8 @@ from . import (
     preflight,
     schema,
     screening,
+    screening_stage,
     settings_notes,
-    solar,
     storage_check,
     timestamps,
     uncertainty,
@@ -208,39 +207,6 @@ def _ustar_thresholds(frame, screened, is_night, site, config):
     return table, found.bootstrap, central, scenarios
 
 
-def _geometry_and_screening(frame, site, config, interval):
-    geometry = solar.solar_geometry(frame.index, site, interval_minutes=interval)
-    potential = geometry["potential_radiation"].to_numpy()
-    is_night = solar.night_mask(frame["rg"].to_numpy(), potential, config.night_rg_threshold)
-    screens = screening.screen(
-        frame, potential, is_night, despike_z=config.despike_z,
-        despike_block_days=config.despike_block_days, rg_margin=config.rg_margin,
-        rg_relative_margin=config.rg_relative_margin)
-    return geometry, is_night, screens
-
-
-def _clock_and_preflight(frame, site, config, interval, geometry, is_night, screens,
-                         reader=None):
-    """The clock verdict (None when ``clock_check = "off"``) and the preflight findings."""
-    reader = reader or {}
-    verdict = None
-    if config.clock_check != "off":
-        verdict = clock.check_clock(
-            frame.index, frame["rg"].to_numpy(dtype=float), site.latitude, site.longitude,
-            site.utc_offset, interval, time_marks=reader.get("time_marks"),
-            shift_applied_minutes=float(reader.get("shift_minutes") or 0.0))
-    findings = preflight.preflight(
-        frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),
-        screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval,
-        reader.get("columns"), sun_elevation=geometry["sun_elevation"].to_numpy())
-    findings = preflight.defer_to_clock(findings, None if verdict is None else verdict.status)
-    if verdict is not None:
-        findings = preflight.shade_at_clock_shift(
-            findings, verdict, screens.screened["rg"].to_numpy(dtype=float), frame.index,
-            site.latitude, site.longitude, site.utc_offset, interval, reader.get("columns"))
-    return verdict, findings
-
-
 def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                  time_marks: str | None = None, shift_applied_minutes: float = 0.0,
                  columns: dict | None = None):
@@ -272,8 +238,8 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
     frame, _ = canonical_frame.prepare(frame, site)
     interval = canonical_frame.validate(frame)
     frame, edges = canonical_frame.budget_record(frame, config, interval)
-    geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
-    verdict, findings = _clock_and_preflight(
+    geometry, is_night, screens = screening_stage.geometry_and_screening(frame, site, config, interval)
+    verdict, findings = screening_stage.clock_and_preflight(
         frame, site, config, interval, geometry, is_night, screens,
         {"time_marks": time_marks, "shift_minutes": shift_applied_minutes, "columns": columns})
     # events outside the record (a mistyped year) are named before a run, as `run` names them
@@ -281,21 +247,6 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
                                 for note in edges] + [
         preflight.Finding("gap filling", note, False)
         for note in gapfill.event_notes(frame.index, config.events)]
-
-
-def _refuse(verdict, findings, config) -> None:
-    """Stop before any fit on a clock problem (unless allowed) or a fatal finding."""
-    clock_problems = list(verdict.problems) if verdict is not None else []
-    if config.clock_check != "refuse":
-        clock_problems = []
-    fatal = [str(finding) for finding in findings if finding.fatal]
-    if not clock_problems and not fatal:
-        return
-    text = "; ".join(clock_problems + fatal)
-    if clock_problems:
-        raise ConfigError(f"{text} (to process anyway, set [processing] clock_check = "
-                          "\"warn\")")
-    raise InsufficientDataError(f"{text} (fluxpart check lists every problem)")
 
 
 def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = None):
@@ -326,7 +277,7 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     frame, _ = canonical_frame.prepare(frame, site)
     interval = canonical_frame.validate(frame)
     frame, _ = canonical_frame.budget_record(frame, config, interval)
-    _, is_night, screens = _geometry_and_screening(frame, site, config, interval)
+    _, is_night, screens = screening_stage.geometry_and_screening(frame, site, config, interval)
     table, _, _, _ = _ustar_thresholds(frame, screens.screened, is_night, site, config)
     # the reasons decided after the u* threshold (low u*, mornings after calm nights) are
     # not known here: a count of 0 would read as none
@@ -560,7 +511,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         if progress is not None:
             progress(label)
 
-    geometry, is_night, screens = _geometry_and_screening(frame, site, config, interval)
+    geometry, is_night, screens = screening_stage.geometry_and_screening(frame, site, config, interval)
     screened = screens.screened
     if "reader" not in (provenance or {}):      # a caller's frame: no reader checked its units
         refusal = unit_checks.frame_refusal(frame, interval, accept_units=accepted)
@@ -568,9 +519,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
             raise ImplausibleValueError(f"input: {refusal}")
         warnings.extend(f"input: {text}" for text in unit_checks.frame_messages(
             frame, geometry["potential_radiation"].to_numpy(), interval, accept_units=accepted))
-    verdict, findings = _clock_and_preflight(frame, site, config, interval, geometry, is_night,
+    verdict, findings = screening_stage.clock_and_preflight(frame, site, config, interval, geometry, is_night,
                                              screens, (provenance or {}).get("reader"))
-    _refuse(verdict, findings, config)
+    screening_stage.refuse(verdict, findings, config)
     if verdict is not None:
         warnings.extend(verdict.problems)
     warnings.extend(str(f) for f in findings if f.stage not in ("u* threshold", "annual budget"))
