@@ -42,6 +42,7 @@ from . import (
     gap_sides,
     gapfill,
     method_failure,
+    method_settings,
     night_uptake,
     preflight,
     schema,
@@ -76,8 +77,6 @@ __all__ = ["Result", "check_record", "load", "process", "process_site_config",
 #: Progress of :func:`process` at INFO level (``logging.getLogger("fluxpart")``).
 _LOG = logging.getLogger("fluxpart.pipeline")
 
-#: The respiration temperature a run does not use, of the one it uses.
-_OTHER_TEMPERATURE = {"tair": "tsoil", "tsoil": "tair"}
 _BUDGET_FLUXES = {"nee_filled": "nee", "gpp_nighttime": "gpp_nighttime",
                   "reco_nighttime": "reco_nighttime", "gpp_daytime": "gpp_daytime",
                   "reco_daytime": "reco_daytime"}
@@ -118,7 +117,7 @@ def _chosen_temperature(driver, index, screened, is_night, threshold, config):
                 index, np.where(too_calm, np.nan, screened["nee"].to_numpy()),
                 screened["tair"].to_numpy(),
                 screened["tsoil"].to_numpy() if "tsoil" in screened.columns else None,
-                is_night, **_nighttime_settings(config, screened["rg"].to_numpy(dtype=float),
+                is_night, **method_settings.nighttime_settings(config, screened["rg"].to_numpy(dtype=float),
                                                 index, nearest_year)))
     except InsufficientDataError as error:
         # the nighttime method cannot fit on air temperature: the run's own fit says why
@@ -288,56 +287,6 @@ def _per_record(index, per_year: pd.Series) -> np.ndarray:
     return per_year.reindex(index.year).to_numpy(dtype=float)
 
 
-def _fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, values_only=False):
-    """MDS gap filling of NEE with the configured settings (also scored on artificial gaps);
-    `values_only`: the filled values as an array (:func:`gapfill.fill_marginal_values`)."""
-    fill = gapfill.fill_marginal_values if values_only else gapfill.fill_marginal
-    return fill(
-        nee_measured, conditions, index, is_night=is_night, donors=config.gapfill_donors,
-        rg_tolerance=config.rg_tolerance, tair_tolerance=config.tair_tolerance,
-        vpd_tolerance=config.vpd_tolerance, max_window_days=config.gapfill_max_window_days,
-        min_donors=config.gapfill_min_donors, gaps=gaps, rg_window=config.gapfill_rg_window,
-        night_rg_threshold=config.night_rg_threshold,
-        clearness=conditions["clearness"] if "clearness" in conditions else None,
-        clearness_tolerance=config.gapfill_clearness_tolerance,
-        estimate=config.gapfill_estimate, breaks=gapfill.event_breaks(index, config.events))
-
-
-def _nighttime_settings(config, rg, index, nearest_year=False) -> dict:
-    """Keyword settings of :func:`nighttime.partition_nighttime` from `config`, with the
-    measured global radiation `rg` [W m-2] its low-light Rref rule needs, the events'
-    pieces of the record `index` (only where events are declared), and `nearest_year`:
-    a year without an E0 of its own takes the nearest year's."""
-    extra = {"e0_nearest_year": True} if nearest_year else {}
-    extra.update(_event_cut(index, config))
-    return {**extra, "e0_window_days": config.e0_window_days,
-            "e0_window_step_days": config.e0_window_step_days,
-            "e0_min_points": config.e0_min_points,
-            "e0_min_temperature_range": config.e0_min_temperature_range,
-            "e0_bounds": config.e0_bounds, "e0_max_relative_error": config.e0_max_relative_error,
-            "e0_best_windows": config.e0_best_windows, "e0_fallback": config.e0_fallback,
-            "rref_window_days": config.rref_window_days,
-            "rref_min_points": config.rref_min_points,
-            "rref_low_light_rg": config.rref_low_light_rg, "rg": rg,
-            "e0_method": config.e0_method}
-
-
-def _event_cut(index, config) -> dict:
-    """``breaks`` of the partitionings' windows where `config` declares events, else none
-    (a run without events calls them exactly as before)."""
-    return {"breaks": gapfill.event_breaks(index, config.events)} if config.events else {}
-
-
-def _respiration_temperature(table, name, delay, filled=False) -> np.ndarray:
-    """The respiration driver `name` from `table` [°C], delayed by `delay` records.
-
-    ``filled``: the gap-filled column (evaluated at every record; the first
-    records take the first value), else the measured one (NaN-padded for fits).
-    """
-    values = table[f"{name}_filled" if filled else name].to_numpy(dtype=float)
-    return temperature_choice.delayed(values, delay, pad="first" if filled else "nan")
-
-
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
                         temperature, config, curvature, night_fit=None, central_fill=None,
                         delay=0, skip=(), nearest_year=False):
@@ -359,23 +308,23 @@ def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, t
     if central_fill is not None and config.gapfill_donors == "separate_day_night":
         # the u* filter removes night records only, and day gaps take day donors only:
         # the day records of every u* scenario are those of the central fill
-        night_fill = _fill_nee(nee_measured, conditions, frame.index, is_night, config,
+        night_fill = method_settings.fill_nee(nee_measured, conditions, frame.index, is_night, config,
                                gaps=is_night)
         filled = pd.DataFrame({column: np.where(is_night, night_fill[column].to_numpy(),
                                                 central_fill[column].to_numpy())
                                for column in night_fill.columns}, index=night_fill.index)
     else:
-        filled = _fill_nee(nee_measured, conditions, frame.index, is_night, config)
-    temperature_filled = _respiration_temperature(filled_drivers, temperature, delay, True)
+        filled = method_settings.fill_nee(nee_measured, conditions, frame.index, is_night, config)
+    temperature_filled = method_settings.respiration_temperature(filled_drivers, temperature, delay, True)
 
     def fit_nighttime(borrow):
         if night_fit is not None:
             return nighttime.apply_fit(night_fit, filled["value"].to_numpy(), temperature_filled)
         return nighttime.partition_nighttime(
             frame.index, nee_measured, filled["value"].to_numpy(),
-            _respiration_temperature(screened, temperature, delay), temperature_filled,
+            method_settings.respiration_temperature(screened, temperature, delay), temperature_filled,
             is_night, respiration_driver=temperature,
-            **_nighttime_settings(config, screened["rg"].to_numpy(dtype=float), frame.index,
+            **method_settings.nighttime_settings(config, screened["rg"].to_numpy(dtype=float), frame.index,
                                   borrow))
 
     central = central_fill is None
@@ -426,7 +375,7 @@ def _fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_fill
         consistency_z=config.daytime_consistency_z,
         rref_max_relative_error=config.daytime_rref_max_relative_error,
         night_in_fit=config.daytime_night_in_fit,
-        curvature=curvature, **_event_cut(frame.index, config))
+        curvature=curvature, **method_settings.event_cut(frame.index, config))
 
 
 def _daytime_error_model(index, nee_measured, screened, config):
@@ -818,10 +767,10 @@ def _respiration_form(frame, filled_drivers, central, is_night, temperature, con
             raise InsufficientDataError("the nighttime method could not fit")
         exponential = respiration_form.exponential_reco(
             frame.index, nee_measured, filled["value"].to_numpy(dtype=float),
-            _respiration_temperature(frame, temperature, delay),
-            _respiration_temperature(filled_drivers, temperature, delay, True), is_night,
+            method_settings.respiration_temperature(frame, temperature, delay),
+            method_settings.respiration_temperature(filled_drivers, temperature, delay, True), is_night,
             respiration_driver=temperature,
-            **_nighttime_settings(config, frame["rg"].to_numpy(dtype=float), frame.index,
+            **method_settings.nighttime_settings(config, frame["rg"].to_numpy(dtype=float), frame.index,
                                   method_failure.borrowed_e0(night)))
     except FluxpartError:
         exponential = None
@@ -856,7 +805,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
     # each artificial gap hides the drivers its real gap lacked
     gap_errors = uncertainty.artificial_gap_errors(
         nee_measured, noise, is_night,
-        lambda values, hidden: _fill_nee(values, conditions.mask(hidden), index, is_night,
+        lambda values, hidden: method_settings.fill_nee(values, conditions.mask(hidden), index, is_night,
                                          config, gaps=measured & np.isnan(values),
                                          values_only=True),
         seed=uncertainty.artificial_gap_seed(nee_measured), records_per_day=24 * 60 // interval,
@@ -866,14 +815,14 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
     sides = gap_sides.one_sided_fills(
         nee_measured, *gap_sides.long_gaps(~measured, 24 * 60 // interval,
                                            breaks=gapfill.event_breaks(index, config.events)),
-        lambda values, gaps: _fill_nee(values, conditions, index, is_night, config,
+        lambda values, gaps: method_settings.fill_nee(values, conditions, index, is_night, config,
                                        gaps=gaps, values_only=True))
     runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
                                 "reco_nighttime": n.reco, "gpp_daytime": d.gpp,
                                 "reco_daytime": d.reco}, index=index)
             for name, (_, _, filled, n, d) in outcomes.items()}
     nee_filled = timeseries["nee_filled"].to_numpy(dtype=float)
-    settings = _nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float), index,
+    settings = method_settings.nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float), index,
                                    method_failure.borrowed_e0(night))
 
     def refit(fit, driver):
@@ -885,7 +834,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         except FluxpartError:
             return None
 
-    other = _OTHER_TEMPERATURE[temperature]
+    other = method_settings.OTHER_TEMPERATURE[temperature]
     other_reco = None
     if method_failure.failed(night):
         pass                     # no nighttime Reco to compare the other driver's with
@@ -913,7 +862,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         other_reco = other_reco + form.shift
     inputs = uncertainty.record_inputs(
         index, runs["central"], runs if len(runs) > 1 else {}, measured, noise, is_night,
-        _respiration_temperature(timeseries, temperature, delay, True), night, day.parameters,
+        method_settings.respiration_temperature(timeseries, temperature, delay, True), night, day.parameters,
         gapfill_model, rref_window_days=config.rref_window_days, other_driver_reco=other_reco,
         nee_measured=nee_measured,
         fill_window_days=timeseries["nee_fill_window_days"].to_numpy(dtype=float),
@@ -922,7 +871,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
         day_driver_statistic=None if day_evidence is None else day_evidence[0],
         day_evidence_critical=temperature_choice.DAYTIME_EVIDENCE_Z,
         fill_sides=sides, daytime_result=day,
-        **_event_cut(index, config))
+        **method_settings.event_cut(index, config))
     notes = []
     if (other_reco is not None and day_evidence is not None and inputs.driver_weight == 0.5
             and abs(day_evidence[0]) > temperature_choice.DAYTIME_EVIDENCE_Z):
@@ -959,10 +908,10 @@ def _daytime_driver_evidence(frame, screened, filled_drivers, central, is_night,
     _, nee_measured, _, night, day = central
     if method_failure.failed(day) or method_failure.failed(night):
         return None
-    other = "tair" if delay else _OTHER_TEMPERATURE[temperature]
+    other = "tair" if delay else method_settings.OTHER_TEMPERATURE[temperature]
     if f"{other}_filled" not in filled_drivers.columns:
         return None
-    other_filled = _respiration_temperature(filled_drivers, other, 0, True)
+    other_filled = method_settings.respiration_temperature(filled_drivers, other, 0, True)
     if not np.isfinite(other_filled).any():
         return None
     try:
