@@ -56,6 +56,7 @@ from . import (
     ustar,
     ustar_fixed,
     ustar_seasonal,
+    ustar_stage,
 )
 from .config import Config
 from .errors import (
@@ -140,72 +141,6 @@ def _forced_temperature_note(driver, index, screened, is_night, threshold, confi
     return temperature_choice.forced_driver_note(driver, choice)
 
 
-def _ustar_thresholds(frame, screened, is_night, site, config):
-    """Return (u* table, bootstrap draws, central threshold per year, scenario thresholds).
-
-    The central threshold of a year is the detector's value on the data; years
-    without one fall back, flagged, to the fixed ``ustar_threshold``. Scenario
-    thresholds are the bootstrap percentiles named in ``ustar_scenarios``.
-    """
-    years = pd.Index(np.unique(frame.index.year), name="year")
-    if config.ustar_method == "fixed":
-        table = pd.DataFrame({"year": years.to_numpy(), "period": "year", "detector": "fixed",
-                              "threshold": config.ustar_threshold, "source": "fixed"})
-        central = pd.Series(config.ustar_threshold, index=years, name="threshold")
-        return table, pd.DataFrame(), central, {}
-    found = ustar.detect_threshold(
-        frame.index, screened["nee"].to_numpy(), screened["ustar"].to_numpy(),
-        screened["tair"].to_numpy(), is_night, site.latitude, detector=config.ustar_method,
-        draws=config.ustar_bootstrap_draws, seed=config.seed,
-        min_threshold=(ustar.CANOPY_FLOORS[site.canopy] if config.ustar_min_threshold is None
-                       else config.ustar_min_threshold),
-        temperature_classes=config.ustar_temperature_classes,
-        ustar_classes=config.ustar_classes, plateau_share=config.ustar_plateau_share,
-        correlation_limit=config.ustar_correlation_limit,
-        min_resolution=config.ustar_min_resolution, annual=config.ustar_annual,
-        plateau_reference=config.ustar_plateau_reference)
-    annual = found.annual.set_index("year").reindex(years)
-    detected = annual["threshold"].astype(float)
-    # a year without a detected threshold takes the nearest year's (same tower and canopy),
-    # and the fixed ustar_threshold only where no year has one (ustar.nearest_detected_year)
-    donors = ustar.nearest_detected_year(detected)
-    percentiles = [name for name in annual.columns if name.startswith("threshold")]
-    for year, donor in donors.items():
-        annual.loc[year, percentiles] = annual.loc[donor, percentiles].to_numpy()
-    central = annual["threshold"].astype(float).fillna(config.ustar_threshold).rename(
-        "threshold")
-    table = found.table()
-    missing_years = set(detected.index[detected.isna()])
-    year_rows = table["period"] == "year"
-    # a year whose seasons all failed, detected from its nights pooled (ustar._pooled_years)
-    pooled_years = set(annual.index[annual["pooled"].eq(True)])
-    table["source"] = np.where(
-        table["year"].isin(missing_years - set(donors)) & year_rows, "fallback",
-        np.where(table["year"].isin(set(donors)) & year_rows, "nearest_year",
-                 np.where(table["threshold"].isna(), "none",
-                          np.where(table["year"].isin(pooled_years) & year_rows,
-                                   "pooled_year", "detected"))))
-    table.loc[table["source"] == "fallback", "threshold"] = config.ustar_threshold
-    borrowed = table["source"] == "nearest_year"
-    table.loc[borrowed, "threshold"] = table.loc[borrowed, "year"].map(
-        lambda year: float(central[donors[year]]))
-    table.loc[borrowed, "reason"] = table.loc[borrowed, "year"].map(
-        lambda year: f"{donors[year]}'s threshold, the nearest year with one")
-    # ... and the donor's bootstrap percentiles, which its u* scenarios use (above), not the
-    # few draws of its own that found a threshold
-    spread = [name for name in table.columns if name.startswith("threshold_p")] + ["draws_valid"]
-    donor_rows = table[year_rows].set_index("year")
-    for year, donor in donors.items():
-        table.loc[year_rows & (table["year"] == year), spread] = (
-            donor_rows.loc[donor, spread].to_numpy())
-    scenarios = {}
-    if config.ustar_bootstrap_draws > 0:
-        for percentile in config.ustar_scenarios:
-            values = annual[f"threshold_p{percentile:02d}"].astype(float)
-            scenarios[f"ustar_p{percentile:02d}"] = values.fillna(central)
-    return table, found.bootstrap, central, scenarios
-
-
 def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                  time_marks: str | None = None, shift_applied_minutes: float = 0.0,
                  columns: dict | None = None):
@@ -277,14 +212,10 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     interval = canonical_frame.validate(frame)
     frame, _ = canonical_frame.budget_record(frame, config, interval)
     _, is_night, screens = screening_stage.geometry_and_screening(frame, site, config, interval)
-    table, _, _, _ = _ustar_thresholds(frame, screens.screened, is_night, site, config)
+    table, _, _, _ = ustar_stage.ustar_thresholds(frame, screens.screened, is_night, site, config)
     # the reasons decided after the u* threshold (low u*, mornings after calm nights) are
     # not known here: a count of 0 would read as none
     return screens.counts.drop(labels=["low_ustar", "morning_release"], errors="ignore"), table
-
-
-def _per_record(index, per_year: pd.Series) -> np.ndarray:
-    return per_year.reindex(index.year).to_numpy(dtype=float)
 
 
 def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
@@ -478,7 +409,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                     else {"setting": config.clock_check, **verdict.to_dict()})
     step("screened")
 
-    ustar_table, ustar_draws, central, scenario_thresholds = _ustar_thresholds(
+    ustar_table, ustar_draws, central, scenario_thresholds = ustar_stage.ustar_thresholds(
         frame, screened, is_night, site, config)
     step("u* threshold")
     warnings.extend(ustar.source_notes(ustar_table, config.ustar_threshold))
@@ -503,8 +434,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         conditions["clearness"] = gapfill.clearness_index(
             conditions["rg"].to_numpy(), geometry["potential_radiation"].to_numpy())
 
-    year_runs = {"central": _per_record(frame.index, central),
-                 **{name: _per_record(frame.index, values)
+    year_runs = {"central": ustar_stage.per_record(frame.index, central),
+                 **{name: ustar_stage.per_record(frame.index, values)
                     for name, values in scenario_thresholds.items()}}
     contrast = ustar_seasonal.seasonal_contrast(ustar_table)
     runs = ustar_seasonal.threshold_runs(frame.index, site.latitude, ustar_table, year_runs,

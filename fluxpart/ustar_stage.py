@@ -1,0 +1,83 @@
+"""The u* threshold stage: the threshold per year, its bootstrap and the scenario thresholds.
+
+The detector of :mod:`fluxpart.ustar` run with the configured settings (or the fixed
+``ustar_threshold``), years without a threshold given the nearest year's, and the
+per-record thresholds of the u* runs (:func:`per_record`).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+from . import ustar
+
+
+def ustar_thresholds(frame, screened, is_night, site, config):
+    """Return (u* table, bootstrap draws, central threshold per year, scenario thresholds).
+
+    The central threshold of a year is the detector's value on the data; years
+    without one fall back, flagged, to the fixed ``ustar_threshold``. Scenario
+    thresholds are the bootstrap percentiles named in ``ustar_scenarios``.
+    """
+    years = pd.Index(np.unique(frame.index.year), name="year")
+    if config.ustar_method == "fixed":
+        table = pd.DataFrame({"year": years.to_numpy(), "period": "year", "detector": "fixed",
+                              "threshold": config.ustar_threshold, "source": "fixed"})
+        central = pd.Series(config.ustar_threshold, index=years, name="threshold")
+        return table, pd.DataFrame(), central, {}
+    found = ustar.detect_threshold(
+        frame.index, screened["nee"].to_numpy(), screened["ustar"].to_numpy(),
+        screened["tair"].to_numpy(), is_night, site.latitude, detector=config.ustar_method,
+        draws=config.ustar_bootstrap_draws, seed=config.seed,
+        min_threshold=(ustar.CANOPY_FLOORS[site.canopy] if config.ustar_min_threshold is None
+                       else config.ustar_min_threshold),
+        temperature_classes=config.ustar_temperature_classes,
+        ustar_classes=config.ustar_classes, plateau_share=config.ustar_plateau_share,
+        correlation_limit=config.ustar_correlation_limit,
+        min_resolution=config.ustar_min_resolution, annual=config.ustar_annual,
+        plateau_reference=config.ustar_plateau_reference)
+    annual = found.annual.set_index("year").reindex(years)
+    detected = annual["threshold"].astype(float)
+    # a year without a detected threshold takes the nearest year's (same tower and canopy),
+    # and the fixed ustar_threshold only where no year has one (ustar.nearest_detected_year)
+    donors = ustar.nearest_detected_year(detected)
+    percentiles = [name for name in annual.columns if name.startswith("threshold")]
+    for year, donor in donors.items():
+        annual.loc[year, percentiles] = annual.loc[donor, percentiles].to_numpy()
+    central = annual["threshold"].astype(float).fillna(config.ustar_threshold).rename(
+        "threshold")
+    table = found.table()
+    missing_years = set(detected.index[detected.isna()])
+    year_rows = table["period"] == "year"
+    # a year whose seasons all failed, detected from its nights pooled (ustar._pooled_years)
+    pooled_years = set(annual.index[annual["pooled"].eq(True)])
+    table["source"] = np.where(
+        table["year"].isin(missing_years - set(donors)) & year_rows, "fallback",
+        np.where(table["year"].isin(set(donors)) & year_rows, "nearest_year",
+                 np.where(table["threshold"].isna(), "none",
+                          np.where(table["year"].isin(pooled_years) & year_rows,
+                                   "pooled_year", "detected"))))
+    table.loc[table["source"] == "fallback", "threshold"] = config.ustar_threshold
+    borrowed = table["source"] == "nearest_year"
+    table.loc[borrowed, "threshold"] = table.loc[borrowed, "year"].map(
+        lambda year: float(central[donors[year]]))
+    table.loc[borrowed, "reason"] = table.loc[borrowed, "year"].map(
+        lambda year: f"{donors[year]}'s threshold, the nearest year with one")
+    # ... and the donor's bootstrap percentiles, which its u* scenarios use (above), not the
+    # few draws of its own that found a threshold
+    spread = [name for name in table.columns if name.startswith("threshold_p")] + ["draws_valid"]
+    donor_rows = table[year_rows].set_index("year")
+    for year, donor in donors.items():
+        table.loc[year_rows & (table["year"] == year), spread] = (
+            donor_rows.loc[donor, spread].to_numpy())
+    scenarios = {}
+    if config.ustar_bootstrap_draws > 0:
+        for percentile in config.ustar_scenarios:
+            values = annual[f"threshold_p{percentile:02d}"].astype(float)
+            scenarios[f"ustar_p{percentile:02d}"] = values.fillna(central)
+    return table, found.bootstrap, central, scenarios
+
+
+def per_record(index, per_year: pd.Series) -> np.ndarray:
+    return per_year.reindex(index.year).to_numpy(dtype=float)
