@@ -45,6 +45,7 @@ from . import (
     method_settings,
     night_uptake,
     preflight,
+    respiration_driver,
     schema,
     screening,
     screening_stage,
@@ -103,42 +104,6 @@ def _labelled(timeseries: pd.DataFrame) -> pd.DataFrame:
     return timeseries.assign(**{column: schema.as_labels(timeseries[column].to_numpy(), names)
                                 for column, names in labels.items()
                                 if column in timeseries.columns})
-
-
-def _chosen_temperature(driver, index, screened, is_night, threshold, config):
-    """Resolve ``respiration_driver = "auto"`` on the u*-filtered night NEE (else as set)."""
-    if driver != "auto":
-        return driver, None
-    too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
-    try:
-        # a year without an E0 of its own takes the nearest year's only where the plain
-        # fits fail (method_failure.first_fit)
-        choice = method_failure.first_fit(
-            lambda nearest_year: temperature_choice.choose_respiration_temperature(
-                index, np.where(too_calm, np.nan, screened["nee"].to_numpy()),
-                screened["tair"].to_numpy(),
-                screened["tsoil"].to_numpy() if "tsoil" in screened.columns else None,
-                is_night, **method_settings.nighttime_settings(config, screened["rg"].to_numpy(dtype=float),
-                                                index, nearest_year)))
-    except InsufficientDataError as error:
-        # the nighttime method cannot fit on air temperature: the run's own fit says why
-        # (and the run goes on with the daytime method where that one fits)
-        return "tair", temperature_choice.TemperatureChoice(
-            "tair", f"no nighttime fit to compare ({error})", {"tair": np.nan, "tsoil": np.nan},
-            0, np.nan, np.nan)
-    return choice.driver, choice
-
-
-def _forced_temperature_note(driver, index, screened, is_night, threshold, config):
-    """The warning of a set respiration temperature the night data reject, or None
-    (:func:`temperature_choice.forced_driver_note` on what ``"auto"`` would choose)."""
-    if driver == "auto" or "tsoil" not in screened.columns:
-        return None
-    try:
-        _, choice = _chosen_temperature("auto", index, screened, is_night, threshold, config)
-    except FluxpartError:
-        return None
-    return temperature_choice.forced_driver_note(driver, choice)
 
 
 def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
@@ -441,10 +406,10 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     runs = ustar_seasonal.threshold_runs(frame.index, site.latitude, ustar_table, year_runs,
                                          contrast, config.ustar_distinct_seasons)
     warnings.extend(ustar_seasonal.contrast_warnings(contrast, config.ustar_distinct_seasons))
-    forced = _forced_temperature_note(temperature, frame.index, screened, is_night,
+    forced = respiration_driver.forced_temperature_note(temperature, frame.index, screened, is_night,
                                       runs["central"], config)
     warnings.extend([forced] if forced else [])
-    temperature, choice = _chosen_temperature(temperature, frame.index, screened, is_night,
+    temperature, choice = respiration_driver.chosen_temperature(temperature, frame.index, screened, is_night,
                                               runs["central"], config)
     if (choice is not None and not np.isfinite(choice.tsoil_weight) and "tsoil" in frame.columns
             and np.isfinite(frame["tsoil"].to_numpy(dtype=float)).any()):
