@@ -50,12 +50,12 @@ from . import (
     screening,
     screening_stage,
     settings_notes,
-    storage_check,
     timestamps,
     uncertainty,
     unit_checks,
     ustar,
     ustar_fixed,
+    ustar_runs,
     ustar_seasonal,
     ustar_stage,
 )
@@ -69,7 +69,7 @@ from .errors import (
     InsufficientDataError,
 )
 from .fingerprint import load_blas_libraries
-from .partition import daytime, nighttime, pieces, respiration_form, temperature_choice
+from .partition import nighttime, pieces, respiration_form, temperature_choice
 from .result import Result, load  # noqa: F401  (re-exported: fluxpart.pipeline.load)
 from .site import Site
 
@@ -183,58 +183,8 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     return screens.counts.drop(labels=["low_ustar", "morning_release"], errors="ignore"), table
 
 
-def _fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
-                        temperature, config, curvature, night_fit=None, central_fill=None,
-                        delay=0, skip=(), nearest_year=False):
-    """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
-
-    `night_fit`: the temperature choice's nighttime fit on the same measured NEE
-    and temperature, reused instead of fitting again. `central_fill`: the central
-    run's NEE fill, whose day records a u* scenario shares (below). `delay`:
-    records by which the respiration temperature is delayed (the choice's).
-    `skip`: methods not fitted (NaN; those the central run could not fit), and
-    `nearest_year`: the nighttime E0 of a year without one from the nearest year
-    (the central run's choice), for a u* scenario. The central run lets one method
-    that cannot fit be NaN and tries the nearest year's E0 only where the plain fit
-    fails (:mod:`fluxpart.method_failure`). Returns the outcome and the errors of
-    the methods that could not fit.
-    """
-    too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
-    nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
-    if central_fill is not None and config.gapfill_donors == "separate_day_night":
-        # the u* filter removes night records only, and day gaps take day donors only:
-        # the day records of every u* scenario are those of the central fill
-        night_fill = method_settings.fill_nee(nee_measured, conditions, frame.index, is_night, config,
-                               gaps=is_night)
-        filled = pd.DataFrame({column: np.where(is_night, night_fill[column].to_numpy(),
-                                                central_fill[column].to_numpy())
-                               for column in night_fill.columns}, index=night_fill.index)
-    else:
-        filled = method_settings.fill_nee(nee_measured, conditions, frame.index, is_night, config)
-    temperature_filled = method_settings.respiration_temperature(filled_drivers, temperature, delay, True)
-
-    def fit_nighttime(borrow):
-        if night_fit is not None:
-            return nighttime.apply_fit(night_fit, filled["value"].to_numpy(), temperature_filled)
-        return nighttime.partition_nighttime(
-            frame.index, nee_measured, filled["value"].to_numpy(),
-            method_settings.respiration_temperature(screened, temperature, delay), temperature_filled,
-            is_night, respiration_driver=temperature,
-            **method_settings.nighttime_settings(config, screened["rg"].to_numpy(dtype=float), frame.index,
-                                  borrow))
-
-    central = central_fill is None
-    night, day, errors = method_failure.partition_both(
-        (lambda: method_failure.first_fit(fit_nighttime)) if central
-        else (lambda: fit_nighttime(nearest_year)),
-        lambda night: _fit_daytime(frame, nee_measured, screened, filled_drivers,
-                                   temperature_filled, is_night, config, curvature, night),
-        len(frame), temperature, skip=skip, degrade=central)
-    return too_calm, nee_measured, filled, night, day, errors
-
-
 def _fallback_e0_text(parameters, fell_back, e0_annual) -> str:
-    """The E0 the daytime windows without their own took (`_fit_daytime`: the median of
+    """The E0 the daytime windows without their own took (`ustar_runs.fit_daytime`: the median of
     the nighttime method's per-record E0), named with each calendar year's E0 where the
     record has several: the median of a record's records can be a value no year has."""
     value = float(parameters.loc[fell_back.to_numpy(), "e0"].iloc[0])
@@ -246,48 +196,6 @@ def _fallback_e0_text(parameters, fell_back, e0_annual) -> str:
                        for year, e0 in years["e0"].items())
     return (f"the median over the record of the nighttime method's E0 ({value:.0f} K; "
             f"calendar years {listed})")
-
-
-def _fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_filled, is_night,
-                 config, curvature, night):
-    """The daytime method with the configured settings (`night`: the nighttime result)."""
-    # the daytime method estimates E0 from its own night windows; where none has the
-    # temperature range for it (e.g. a damped soil temperature), the nighttime method's
-    # E0 stands in, flagged "fallback" in the daytime parameter table and warned about
-    day_e0_fallback = config.e0_fallback
-    if day_e0_fallback is None and np.isfinite(night.e0).any():
-        day_e0_fallback = float(np.nanmedian(night.e0))
-    return daytime.partition_daytime(
-        frame.index, nee_measured, filled_drivers["rg_filled"].to_numpy(),
-        filled_drivers["vpd_filled"].to_numpy(), temperature_filled, is_night,
-        random_error=_daytime_error_model(frame.index, nee_measured, screened, config),
-        window_days=config.daytime_window_days, window_step_days=config.daytime_window_step_days,
-        min_points=config.daytime_min_points, k_min_points=config.daytime_k_min_points,
-        beta0_max=config.daytime_beta0_max, e0_window_days=config.daytime_e0_window_days,
-        e0_min_points=config.e0_min_points,
-        e0_min_temperature_range=config.e0_min_temperature_range, e0_bounds=config.e0_bounds,
-        e0_max_relative_error=config.e0_max_relative_error, e0_fallback=day_e0_fallback,
-        night_min_points=config.daytime_night_min_points,
-        consistency_z=config.daytime_consistency_z,
-        rref_max_relative_error=config.daytime_rref_max_relative_error,
-        night_in_fit=config.daytime_night_in_fit,
-        curvature=curvature, **method_settings.event_cut(frame.index, config))
-
-
-def _daytime_error_model(index, nee_measured, screened, config):
-    """σ(NEE) of the random-error model for weighting the daytime fit, or None (unweighted)."""
-    if config.daytime_weighting == "none":
-        return None
-    try:
-        pairs = uncertainty.paired_differences(
-            index, nee_measured, screened["rg"].to_numpy(dtype=float),
-            screened["tair"].to_numpy(dtype=float), screened["vpd"].to_numpy(dtype=float),
-            rg_tolerance=config.random_error_rg_tolerance,
-            tair_tolerance=config.random_error_tair_tolerance,
-            vpd_tolerance=config.random_error_vpd_tolerance)
-        return uncertainty.random_error_model(pairs).predict
-    except InsufficientDataError:
-        return None
 
 
 def stage_count(config: Config) -> int:
@@ -433,7 +341,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         # one after another: in two threads the runs cost ~12 % more CPU and ~16 MB more
         # memory for no gain in wall time (GIL-bound); sites run in parallel in `batch`
         notes = []
-        return _threshold_runs((frame, screened_now, filled_drivers, conditions, is_night),
+        return ustar_runs.threshold_runs((frame, screened_now, filled_drivers, conditions, is_night),
                                runs, temperature, config, night_fits.get(temperature), delay,
                                notes, report, year_keys), notes
 
@@ -442,7 +350,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         outcomes, run_warnings = all_runs(screened, step)
         # the release of CO2 stored on calm nights, seen in the mornings after them
         # (storage_check); where it shows, those mornings are excluded and the runs redone
-        outcomes, run_warnings, screened, released, release_notes = _storage_release(
+        outcomes, run_warnings, screened, released, release_notes = ustar_runs.storage_release(
             outcomes, run_warnings, screened, all_runs, frame["ustar"].to_numpy(dtype=float),
             runs["central"], is_night, year_keys, interval, config.storage_release)
     warnings.extend(run_warnings)
@@ -565,94 +473,6 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                     "uncertainty": {"confidence": uncertainty.CONFIDENCE,
                                     "not_quantified": list(uncertainty.NOT_QUANTIFIED),
                                     "checked": uncertainty.CALIBRATION_CHECK}})
-
-
-def _threshold_runs(arguments, runs, temperature, config, night_fit, delay, warnings, step,
-                    year_keys=()):
-    """Fill and partition at each u* run's thresholds; the outcomes by run name.
-
-    The central run comes first (it may reuse `night_fit`, the temperature choice's
-    nighttime fit on the same measured NEE); the scenarios share its NEE fill of the
-    day records and its light-response curvature. A scenario with too little data is
-    left out with a warning appended to `warnings`. A method the central run could not
-    fit is NaN in every run, named in `warnings` with the budget years `year_keys`.
-    """
-    outcomes = {}
-    curvature = config.daytime_curvature
-    skip, borrowed = (), False
-    for name, threshold in runs.items():
-        try:
-            *outcome, errors = _fill_and_partition(
-                *arguments, threshold, temperature, config, curvature,
-                night_fit if name == "central" else None,
-                None if name == "central" else outcomes["central"][2], delay, skip, borrowed)
-            outcomes[name] = tuple(outcome)
-            if name == "central":
-                skip = tuple(errors)
-                borrowed = method_failure.borrowed_e0(outcome[3])
-                warnings.extend(nighttime.nearest_year_notes(outcome[3].e0_annual, temperature))
-                warnings.extend(method_failure.failure_warning(method, np.unique(year_keys),
-                                                               error)
-                                for method, error in errors.items())
-            if name == "central" and "daytime" not in skip:
-                # the u* scenarios keep the central run's light-response curvature, so
-                # that their spread is the u* threshold's alone
-                day_parameters = outcomes["central"][4].parameters
-                curvature = float(day_parameters["curvature"].iloc[0])
-        except InsufficientDataError as error:
-            if name == "central":
-                raise
-            # a higher u* threshold can leave too few night records for a method: that
-            # scenario is left out of the u* part (computed from the runs that remain)
-            warnings.append(f"u* scenario {name} not computed ({error}); the u* part of the "
-                            "uncertainty uses the remaining runs")
-        if name not in ("ustar_seasonal", "ustar_year"):     # runs stage_count cannot foresee
-            step(f"gap filling and partitioning ({name})")
-    return outcomes
-
-
-def _storage_release(outcomes, run_warnings, screened, rerun, ustar, threshold, is_night,
-                     year_keys, interval, mode):
-    """Exclude the mornings after calm nights where their release of stored CO2 shows.
-
-    Stage by stage (:data:`fluxpart.storage_check.CALM_SHARES`: the nights at least half
-    calm, then, in the years that stage flagged, the nights with any calm record), the
-    mornings after such nights are compared with the others
-    (:func:`fluxpart.storage_check.morning_release`); where the excess is flagged and
-    `mode` is ``"exclude"``, they are excluded from the measured NEE and ``rerun(screened)``
-    redoes the u* runs (returning their outcomes and warnings). Returns the outcomes and
-    their warnings, the screened record, the excluded records (bool) and the warnings
-    that name the release.
-    """
-    released = np.zeros(len(screened), dtype=bool)
-    marked = np.zeros(len(screened), dtype=bool)   # the mornings excluded, measured or not
-    day = outcomes["central"][4]
-    notes = storage_check.unchecked_warnings(storage_check.unchecked_years(
-        outcomes["central"][1], day.reco - day.gpp, is_night, year_keys))
-    years = None
-    for stage, share in enumerate(storage_check.CALM_SHARES):
-        day = outcomes["central"][4]
-        # the mornings an earlier stage excluded no longer carry their release: a later
-        # stage's excess is counted over the others only
-        rows = [row for row in storage_check.morning_release(
-                    outcomes["central"][1], ustar, threshold, is_night, day.reco - day.gpp,
-                    year_keys, interval, share, excluded=marked)
-                if years is None or row["year"] in years]
-        flagged = [row["year"] for row in rows if row["flagged"]]
-        if not flagged or mode != "exclude":
-            notes.extend(storage_check.release_warnings(rows, 0, stage))
-            break
-        nee = screened["nee"].to_numpy(dtype=float)
-        mornings = storage_check.release_mornings(ustar, threshold, is_night, year_keys,
-                                                  flagged, interval, share)
-        marked |= mornings
-        more = mornings & np.isfinite(nee)
-        released |= more
-        screened = screened.assign(nee=np.where(more, np.nan, nee))
-        outcomes, run_warnings = rerun(screened)
-        notes.extend(storage_check.release_warnings(rows, int(more.sum()), stage))
-        years = flagged
-    return outcomes, run_warnings, screened, released, notes
 
 
 def _respiration_form(frame, filled_drivers, central, is_night, temperature, config, delay=0):
@@ -811,7 +631,7 @@ def _daytime_driver_evidence(frame, screened, filled_drivers, central, is_night,
     if not np.isfinite(other_filled).any():
         return None
     try:
-        other_day = _fit_daytime(frame, nee_measured, screened, filled_drivers, other_filled,
+        other_day = ustar_runs.fit_daytime(frame, nee_measured, screened, filled_drivers, other_filled,
                                  is_night, config, float(day.parameters["curvature"].iloc[0]),
                                  night)
     except FluxpartError:

@@ -30,7 +30,7 @@ def chosen_temperature(driver, index, screened, is_night, threshold, config):
                 screened["tair"].to_numpy(),
                 screened["tsoil"].to_numpy() if "tsoil" in screened.columns else None,
                 is_night, **nighttime_settings(config, screened["rg"].to_numpy(dtype=float),
-                                                index, nearest_year)))
+                                               index, nearest_year)))
     except InsufficientDataError as error:
         # the nighttime method cannot fit on air temperature: the run's own fit says why
         # (and the run goes on with the daytime method where that one fits)

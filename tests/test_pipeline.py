@@ -434,10 +434,10 @@ def test_a_failing_ustar_scenario_is_left_out_with_a_warning(monkeypatch):
     out of the u* part (with a warning) instead of stopping the run; the central run is not
     (wiring test, issue 11)."""
     import fluxpart
-    from fluxpart import pipeline
+    from fluxpart import ustar_runs
     from fluxpart.errors import InsufficientDataError
 
-    real = pipeline._fill_and_partition
+    real = ustar_runs.fill_and_partition
     calls = []
 
     def failing_highest(*args, **kwargs):
@@ -447,7 +447,7 @@ def test_a_failing_ustar_scenario_is_left_out_with_a_warning(monkeypatch):
             raise InsufficientDataError("no acceptable Lloyd–Taylor window (test)")
         return real(*args, **kwargs)
 
-    monkeypatch.setattr(pipeline, "_fill_and_partition", failing_highest)
+    monkeypatch.setattr(ustar_runs, "fill_and_partition", failing_highest)
     frame, _ = fluxpart.demo.site_year(seed=0)
     frame = frame.loc["2021-04-01":"2021-07-29"]
     config = fluxpart.Config(ustar_bootstrap_draws=10, clock_check="off")
