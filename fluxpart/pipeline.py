@@ -25,7 +25,6 @@ settings to the stage functions and assembles their outputs.
 
 from __future__ import annotations
 
-import dataclasses
 import logging
 import warnings as _warnings
 from pathlib import Path
@@ -39,6 +38,7 @@ from . import (
     budget,
     budget_warnings,
     canonical_frame,
+    central_run,
     gap_sides,
     gapfill,
     method_failure,
@@ -69,7 +69,7 @@ from .errors import (
     InsufficientDataError,
 )
 from .fingerprint import load_blas_libraries
-from .partition import nighttime, pieces, respiration_form, temperature_choice
+from .partition import nighttime, pieces, temperature_choice
 from .result import Result, load  # noqa: F401  (re-exported: fluxpart.pipeline.load)
 from .site import Site
 
@@ -181,21 +181,6 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     # the reasons decided after the u* threshold (low u*, mornings after calm nights) are
     # not known here: a count of 0 would read as none
     return screens.counts.drop(labels=["low_ustar", "morning_release"], errors="ignore"), table
-
-
-def _fallback_e0_text(parameters, fell_back, e0_annual) -> str:
-    """The E0 the daytime windows without their own took (`ustar_runs.fit_daytime`: the median of
-    the nighttime method's per-record E0), named with each calendar year's E0 where the
-    record has several: the median of a record's records can be a value no year has."""
-    value = float(parameters.loc[fell_back.to_numpy(), "e0"].iloc[0])
-    years = e0_annual.dropna(subset=["e0"]) if "e0" in getattr(e0_annual, "columns", ()) \
-        else None
-    if years is None or len(years) < 2:
-        return f"the nighttime method's E0 ({value:.0f} K)"
-    listed = ", ".join(f"{int(year)}: {float(e0):.0f} K"
-                       for year, e0 in years["e0"].items())
-    return (f"the median over the record of the nighttime method's E0 ({value:.0f} K; "
-            f"calendar years {listed})")
 
 
 def stage_count(config: Config) -> int:
@@ -358,9 +343,9 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
 
     # the nighttime method's central Reco averaged over the two respiration forms; the
     # same per-record shift in every u* run keeps their spread the threshold's alone
-    form = _respiration_form(frame, filled_drivers, outcomes["central"], is_night, temperature,
+    form = central_run.averaged_form(frame, filled_drivers, outcomes["central"], is_night, temperature,
                              config, delay)
-    outcomes = {name: (*outcome[:3], _shifted(outcome[3], form.shift), outcome[4])
+    outcomes = {name: (*outcome[:3], central_run.shifted(outcome[3], form.shift), outcome[4])
                 for name, outcome in outcomes.items()}
     too_calm, nee_measured, filled, night, day = outcomes["central"]
     warnings.extend(gapfill.crossed_event_notes(frame.index, config.events,
@@ -368,7 +353,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     if config.events:
         warnings.extend(pieces.window_notes(frame.index, gapfill.event_breaks(
             frame.index, config.events), night.rref_windows, day.parameters))
-    day_evidence = _daytime_driver_evidence(frame, screened, filled_drivers,
+    day_evidence = central_run.daytime_driver_evidence(frame, screened, filled_drivers,
                                             outcomes["central"], is_night, temperature, delay,
                                             config)
     fell_back = day.parameters["e0_source"] == "fallback"
@@ -379,7 +364,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
             f"windows of at least {config.e0_min_points} night records spanning "
             f"{config.e0_min_temperature_range} K within "
             f"{max(config.daytime_e0_window_days)} days); "
-            f"{_fallback_e0_text(day.parameters, fell_back, night.e0_annual)} was used there, "
+            f"{central_run.fallback_e0_text(day.parameters, fell_back, night.e0_annual)} was used there, "
             "flagged 'fallback' in the daytime parameter table, so the two methods are not "
             "independent in their E0")
     flags = screens.flags.assign(nee_low_ustar=too_calm, nee_morning_release=released)
@@ -475,34 +460,6 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                                     "checked": uncertainty.CALIBRATION_CHECK}})
 
 
-def _respiration_form(frame, filled_drivers, central, is_night, temperature, config, delay=0):
-    """Both respiration forms' nighttime Reco on the central run, averaged as configured."""
-    _, nee_measured, filled, night, _ = central
-    try:
-        if method_failure.failed(night):
-            raise InsufficientDataError("the nighttime method could not fit")
-        exponential = respiration_form.exponential_reco(
-            frame.index, nee_measured, filled["value"].to_numpy(dtype=float),
-            method_settings.respiration_temperature(frame, temperature, delay),
-            method_settings.respiration_temperature(filled_drivers, temperature, delay, True), is_night,
-            respiration_driver=temperature,
-            **method_settings.nighttime_settings(config, frame["rg"].to_numpy(dtype=float), frame.index,
-                                  method_failure.borrowed_e0(night)))
-    except FluxpartError:
-        exponential = None
-    weight = 0.0 if exponential is None else uncertainty.driver_weight(
-        nee_measured, is_night, night.reco, exponential)
-    return respiration_form.average_forms(night.reco, exponential, weight,
-                                          config.respiration_form)
-
-
-def _shifted(night, shift):
-    """A nighttime result with `shift` [µmol m-2 s-1] added to its Reco and GPP."""
-    if not np.any(shift):
-        return night
-    return dataclasses.replace(night, reco=night.reco + shift, gpp=night.gpp + shift)
-
-
 def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions, is_night,
                  night, day, temperature, interval, config, year_keys, night_fits,
                  error_model=None, form=None, delay=0, day_evidence=None):
@@ -510,7 +467,7 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
 
     `night_fits`: nighttime fits on the central measured NEE and the input's temperature
     columns (by driver), reused for the other driver's Reco. `day_evidence`: (statistic,
-    other temperature's name) of :func:`_daytime_driver_evidence`, or None. Also returns
+    other temperature's name) of :func:`central_run.daytime_driver_evidence`, or None. Also returns
     the warning of a temperature choice the daytime records contradict (a list).
     """
     index = timeseries.index
@@ -611,35 +568,6 @@ def _uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions
     notes.extend(gap_sides.state_change_notes(index, nee_filled, *sides, interval,
                                               annual["nee_uncertainty_gapfill"], year_keys))
     return tables[0], tables[1], annual, gapfill_model, notes
-
-
-def _daytime_driver_evidence(frame, screened, filled_drivers, central, is_night, temperature,
-                             delay, config):
-    """The daytime records' evidence on the respiration temperature, or None.
-
-    The daytime method fitted again with the other temperature (undelayed air
-    temperature for a delayed one) and the central run's light-response curvature;
-    returns (:func:`temperature_choice.daytime_evidence`, the other temperature's name).
-    """
-    _, nee_measured, _, night, day = central
-    if method_failure.failed(day) or method_failure.failed(night):
-        return None
-    other = "tair" if delay else method_settings.OTHER_TEMPERATURE[temperature]
-    if f"{other}_filled" not in filled_drivers.columns:
-        return None
-    other_filled = method_settings.respiration_temperature(filled_drivers, other, 0, True)
-    if not np.isfinite(other_filled).any():
-        return None
-    try:
-        other_day = ustar_runs.fit_daytime(frame, nee_measured, screened, filled_drivers, other_filled,
-                                 is_night, config, float(day.parameters["curvature"].iloc[0]),
-                                 night)
-    except FluxpartError:
-        return None
-    statistic = temperature_choice.daytime_evidence(
-        nee_measured, ~np.asarray(is_night, dtype=bool), day.reco - day.gpp,
-        other_day.reco - other_day.gpp, frame.index.normalize())
-    return statistic, other
 
 
 def _scenario_spread(annual, outcomes, index, interval, year_keys) -> pd.DataFrame:

@@ -1,0 +1,101 @@
+"""What follows the u* runs on the central run: the respiration form, the daytime evidence.
+
+The nighttime Reco refitted with a constant Q10 and averaged with the Lloyd–Taylor
+Reco by their BIC weight (:mod:`fluxpart.partition.respiration_form`), the same shift
+added to every u* run (:func:`shifted`); the daytime method refitted on the other
+respiration temperature as evidence on the choice
+(:func:`fluxpart.partition.temperature_choice.daytime_evidence`); the text naming the
+E0 daytime windows without their own took.
+
+References
+----------
+Lloyd, J. and Taylor, J. A. (1994). On the temperature dependence of soil respiration.
+Functional Ecology 8, 315-323.
+Lasslop, G. et al. (2010). Separation of net ecosystem exchange into assimilation
+and respiration using a light response curve approach. Global Change Biology 16,
+187-208.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+
+import numpy as np
+
+from . import method_failure, uncertainty
+from .errors import FluxpartError, InsufficientDataError
+from .method_settings import OTHER_TEMPERATURE, nighttime_settings, respiration_temperature
+from .partition import respiration_form, temperature_choice
+from .ustar_runs import fit_daytime
+
+
+def averaged_form(frame, filled_drivers, central, is_night, temperature, config, delay=0):
+    """Both respiration forms' nighttime Reco on the central run, averaged as configured."""
+    _, nee_measured, filled, night, _ = central
+    try:
+        if method_failure.failed(night):
+            raise InsufficientDataError("the nighttime method could not fit")
+        exponential = respiration_form.exponential_reco(
+            frame.index, nee_measured, filled["value"].to_numpy(dtype=float),
+            respiration_temperature(frame, temperature, delay),
+            respiration_temperature(filled_drivers, temperature, delay, True), is_night,
+            respiration_driver=temperature,
+            **nighttime_settings(config, frame["rg"].to_numpy(dtype=float), frame.index,
+                                 method_failure.borrowed_e0(night)))
+    except FluxpartError:
+        exponential = None
+    weight = 0.0 if exponential is None else uncertainty.driver_weight(
+        nee_measured, is_night, night.reco, exponential)
+    return respiration_form.average_forms(night.reco, exponential, weight,
+                                          config.respiration_form)
+
+
+def shifted(night, shift):
+    """A nighttime result with `shift` [µmol m-2 s-1] added to its Reco and GPP."""
+    if not np.any(shift):
+        return night
+    return dataclasses.replace(night, reco=night.reco + shift, gpp=night.gpp + shift)
+
+
+def daytime_driver_evidence(frame, screened, filled_drivers, central, is_night, temperature,
+                            delay, config):
+    """The daytime records' evidence on the respiration temperature, or None.
+
+    The daytime method fitted again with the other temperature (undelayed air
+    temperature for a delayed one) and the central run's light-response curvature;
+    returns (:func:`temperature_choice.daytime_evidence`, the other temperature's name).
+    """
+    _, nee_measured, _, night, day = central
+    if method_failure.failed(day) or method_failure.failed(night):
+        return None
+    other = "tair" if delay else OTHER_TEMPERATURE[temperature]
+    if f"{other}_filled" not in filled_drivers.columns:
+        return None
+    other_filled = respiration_temperature(filled_drivers, other, 0, True)
+    if not np.isfinite(other_filled).any():
+        return None
+    try:
+        other_day = fit_daytime(frame, nee_measured, screened, filled_drivers, other_filled,
+                                is_night, config, float(day.parameters["curvature"].iloc[0]),
+                                night)
+    except FluxpartError:
+        return None
+    statistic = temperature_choice.daytime_evidence(
+        nee_measured, ~np.asarray(is_night, dtype=bool), day.reco - day.gpp,
+        other_day.reco - other_day.gpp, frame.index.normalize())
+    return statistic, other
+
+
+def fallback_e0_text(parameters, fell_back, e0_annual) -> str:
+    """The E0 the daytime windows without their own took (`fit_daytime`: the median of
+    the nighttime method's per-record E0), named with each calendar year's E0 where the
+    record has several: the median of a record's records can be a value no year has."""
+    value = float(parameters.loc[fell_back.to_numpy(), "e0"].iloc[0])
+    years = e0_annual.dropna(subset=["e0"]) if "e0" in getattr(e0_annual, "columns", ()) \
+        else None
+    if years is None or len(years) < 2:
+        return f"the nighttime method's E0 ({value:.0f} K)"
+    listed = ", ".join(f"{int(year)}: {float(e0):.0f} K"
+                       for year, e0 in years["e0"].items())
+    return (f"the median over the record of the nighttime method's E0 ({value:.0f} K; "
+            f"calendar years {listed})")
