@@ -44,6 +44,7 @@ from . import (
     night_uptake,
     preflight,
     respiration_driver,
+    result_tables,
     schema,
     screening,
     screening_stage,
@@ -76,33 +77,6 @@ __all__ = ["Result", "check_record", "load", "process", "process_site_config",
 
 #: Progress of :func:`process` at INFO level (``logging.getLogger("fluxpart")``).
 _LOG = logging.getLogger("fluxpart.pipeline")
-
-_BUDGET_FLUXES = {"nee_filled": "nee", "gpp_nighttime": "gpp_nighttime",
-                  "reco_nighttime": "reco_nighttime", "gpp_daytime": "gpp_daytime",
-                  "reco_daytime": "reco_daytime"}
-_REASON_LOW_USTAR = {name: code for code, name in screening.REASON_CODES.items()}["low_ustar"]
-_REASON_MORNING_RELEASE = {name: code for code, name
-                           in screening.REASON_CODES.items()}["morning_release"]
-#: Labels of the fill-quality codes of gap filling (its own mapping where it has one).
-_QUALITY_LABELS = getattr(gapfill, "QUALITY_NAMES", None) or {
-    gapfill.QUALITY_UNFILLED: "unfilled", gapfill.QUALITY_MEASURED: "measured",
-    gapfill.QUALITY_A: "A", gapfill.QUALITY_B: "B", gapfill.QUALITY_C: "C"}
-#: Labels of the fill-method codes of gap filling.
-_METHOD_LABELS = {gapfill.METHOD_UNFILLED: "unfilled", gapfill.METHOD_MEASURED: "measured",
-                  gapfill.METHOD_ALL_DRIVERS: "similar_drivers",
-                  gapfill.METHOD_RADIATION: "similar_radiation",
-                  gapfill.METHOD_DIURNAL_COURSE: "diurnal_course",
-                  getattr(gapfill, "METHOD_INTERPOLATED", 4): "interpolated"}
-
-
-def _labelled(timeseries: pd.DataFrame) -> pd.DataFrame:
-    """Rejection reason, fill method and fill qualities as labelled (dictionary) columns."""
-    labels = {"rejection_reason": screening.REASON_CODES, "nee_fill_method": _METHOD_LABELS}
-    labels.update({c: _QUALITY_LABELS for c in timeseries.columns if c.endswith("_fill_quality")})
-    return timeseries.assign(**{column: schema.as_labels(timeseries[column].to_numpy(), names)
-                                for column, names in labels.items()
-                                if column in timeseries.columns})
-
 
 def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                  time_marks: str | None = None, shift_applied_minutes: float = 0.0,
@@ -367,8 +341,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
             "independent in their E0")
     flags = screens.flags.assign(nee_low_ustar=too_calm, nee_morning_release=released)
     reason = screens.reason.to_numpy().copy()
-    reason[(reason == 0) & too_calm] = _REASON_LOW_USTAR
-    reason[(reason == 0) & released] = _REASON_MORNING_RELEASE
+    reason[(reason == 0) & too_calm] = result_tables.REASON_LOW_USTAR
+    reason[(reason == 0) & released] = result_tables.REASON_MORNING_RELEASE
     timeseries = pd.concat([
         frame,
         geometry,
@@ -384,7 +358,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                       "reco_daytime": day.reco, "gpp_daytime": day.gpp}, index=frame.index),
     ], axis=1)
 
-    budgets = budget.aggregate(timeseries, interval, fluxes=_BUDGET_FLUXES,
+    budgets = budget.aggregate(timeseries, interval, fluxes=result_tables.BUDGET_FLUXES,
                                year_start=config.year_start)
     # year_keys: budget year of each record ([processing] year_start); u* thresholds and
     # the annual E0 stay per calendar year of data
@@ -423,12 +397,12 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     annual = annual.join(uncertainty.carbon_accounting_units(annual))
     audit_table = audit.audit_trail(timeseries, year_keys=year_keys)
     counts = screens.counts.copy()
-    counts[screening.REASON_CODES[_REASON_LOW_USTAR]] = int((reason == _REASON_LOW_USTAR).sum())
-    counts[screening.REASON_CODES[_REASON_MORNING_RELEASE]] = int(
-        (reason == _REASON_MORNING_RELEASE).sum())
+    counts[screening.REASON_CODES[result_tables.REASON_LOW_USTAR]] = int((reason == result_tables.REASON_LOW_USTAR).sum())
+    counts[screening.REASON_CODES[result_tables.REASON_MORNING_RELEASE]] = int(
+        (reason == result_tables.REASON_MORNING_RELEASE).sum())
     counts[screening.REASON_CODES[0]] = int((reason == 0).sum())
     warnings.extend(budget_warnings.budget_year_warnings(
-        annual, timeseries, year_keys, interval, config, list(_BUDGET_FLUXES.values()),
+        annual, timeseries, year_keys, interval, config, list(result_tables.BUDGET_FLUXES.values()),
         unfitted))
     for text in warnings:
         _warnings.warn(text, FluxpartWarning, stacklevel=2)
@@ -438,7 +412,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                   "ustar_bootstrap": ustar_draws, **parameters}
     return Result(
         site=site, config=config,
-        timeseries=schema.with_metadata(_labelled(timeseries), "timeseries", facts),
+        timeseries=schema.with_metadata(result_tables.labelled(timeseries), "timeseries", facts),
         daily=schema.with_metadata(daily, "daily", facts),
         monthly=schema.with_metadata(monthly, "monthly", facts),
         annual=schema.with_metadata(annual, "annual", facts),
