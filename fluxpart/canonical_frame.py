@@ -12,11 +12,12 @@ refusal names the column, row or setting.
 from __future__ import annotations
 
 import datetime
+from typing import NamedTuple
 
 import numpy as np
 import pandas as pd
 
-from . import timestamps
+from . import gapfill, timestamps
 from ._validate import unique_columns
 from .config import Config
 from .errors import ConfigError, FluxpartError, MissingColumnError, SpacingError
@@ -151,3 +152,60 @@ def respiration_setting(config: Config, frame: pd.DataFrame) -> str:
                           "has no value (every record empty or a missing code); set "
                           "respiration_driver = 'auto' or the other temperature")
     return driver
+
+
+class RunRecord(NamedTuple):
+    """The record a run works on, and what preparing it said.
+
+    Attributes
+    ----------
+    frame : pandas.DataFrame
+        Canonical variables as float64 on the budget years, the index named ``time``.
+    interval : int
+        Record interval [minutes].
+    temperature : str
+        ``respiration_driver`` as set (``"auto"``, ``"tair"`` or ``"tsoil"``).
+    accepted : tuple of str
+        Variables a site config's ``[input] accept_units`` kept as they are.
+    warnings : list of str
+        The reader's and the preparation's notes, the budget years' edges and the
+        events outside the record, in this order.
+    """
+
+    frame: pd.DataFrame
+    interval: int
+    temperature: str
+    accepted: tuple
+    warnings: list
+
+
+def run_record(frame, site: Site, config: Config, provenance: dict | None) -> RunRecord:
+    """Prepare and validate a caller's frame once (the first stage of a run).
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The caller's record (:func:`fluxpart.pipeline.process`); not modified.
+    site : Site
+        The tower (its ``utc_offset`` for a tz-aware index).
+    config : Config
+        Settings (``year_start``, ``respiration_driver``, ``events``).
+    provenance : dict or None
+        The run's provenance; its ``reader`` record's warnings come first.
+
+    Returns
+    -------
+    RunRecord
+    """
+    # variables a site config's [input] accept_units kept as they are (a frame of the reader)
+    accepted = tuple(getattr(frame, "attrs", {}).get("accept_units", ()))
+    frame, notes = prepare(frame, site)
+    interval = validate(frame)
+    frame, edges = budget_record(frame, config, interval)
+    frame = frame.copy()
+    frame.index = frame.index.rename("time")
+    temperature = respiration_setting(config, frame)
+    warnings = [f"input: {text}" for text in [*(provenance or {}).get("reader", {}).get(
+        "warnings", []), *notes]] + [f"budget year: {text}" for text in edges]
+    warnings.extend(gapfill.event_notes(frame.index, config.events))
+    return RunRecord(frame, interval, temperature, accepted, warnings)

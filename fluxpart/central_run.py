@@ -19,13 +19,14 @@ and respiration using a light response curve approach. Global Change Biology 16,
 from __future__ import annotations
 
 import dataclasses
+from typing import NamedTuple
 
 import numpy as np
 
-from . import method_failure, uncertainty
+from . import gapfill, method_failure, uncertainty
 from .errors import FluxpartError, InsufficientDataError
 from .method_settings import OTHER_TEMPERATURE, nighttime_settings, respiration_temperature
-from .partition import respiration_form, temperature_choice
+from .partition import pieces, respiration_form, temperature_choice
 from .ustar_runs import fit_daytime
 
 
@@ -99,3 +100,79 @@ def fallback_e0_text(parameters, fell_back, e0_annual) -> str:
                        for year, e0 in years["e0"].items())
     return (f"the median over the record of the nighttime method's E0 ({value:.0f} K; "
             f"calendar years {listed})")
+
+
+class CentralStage(NamedTuple):
+    """The u* runs with the respiration form's shift, and the central run's evidence.
+
+    Attributes
+    ----------
+    outcomes : dict of str to fluxpart.ustar_runs.RunOutcome
+        Every run, its nighttime Reco and GPP shifted by the respiration form's average.
+    form : fluxpart.partition.respiration_form.FormAverage
+        The two respiration forms' weights and the per-record shift [µmol m-2 s-1].
+    day_evidence : tuple or None
+        (statistic, other temperature's name) of :func:`daytime_driver_evidence`.
+    warnings : list of str
+        Events a fill crossed, pieces without a window of their own, the daytime E0
+        fallback, in this order.
+    """
+
+    outcomes: dict
+    form: object
+    day_evidence: object
+    warnings: list
+
+
+def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
+    """The respiration form averaged into every run, and the central run's checks.
+
+    Parameters
+    ----------
+    inputs : fluxpart.ustar_runs.RunInputs
+        The record, screened as the runs were (after the storage check), with its
+        filled drivers.
+    outcomes : dict of str to fluxpart.ustar_runs.RunOutcome
+        The u* runs.
+    driver : fluxpart.respiration_driver.DriverDecision
+        The respiration temperature and its delay.
+    config : Config
+        Settings.
+
+    Returns
+    -------
+    CentralStage
+
+    References
+    ----------
+    Lloyd, J. and Taylor, J. A. (1994). On the temperature dependence of soil
+    respiration. Functional Ecology 8, 315-323.
+    """
+    frame, screened, filled_drivers, _, is_night = inputs
+    temperature, delay = driver.temperature, driver.delay
+    # the nighttime method's central Reco averaged over the two respiration forms; the
+    # same per-record shift in every u* run keeps their spread the threshold's alone
+    form = averaged_form(frame, filled_drivers, outcomes["central"], is_night, temperature,
+                         config, delay)
+    outcomes = {name: outcome._replace(night=shifted(outcome.night, form.shift))
+                for name, outcome in outcomes.items()}
+    _, _, filled, night, day = outcomes["central"]
+    warnings = list(gapfill.crossed_event_notes(frame.index, config.events,
+                                                filled.attrs.pop("events_crossed", [])))
+    if config.events:
+        warnings.extend(pieces.window_notes(frame.index, gapfill.event_breaks(
+            frame.index, config.events), night.rref_windows, day.parameters))
+    day_evidence = daytime_driver_evidence(frame, screened, filled_drivers, outcomes["central"],
+                                           is_night, temperature, delay, config)
+    fell_back = day.parameters["e0_source"] == "fallback"
+    if config.e0_fallback is None and fell_back.any():
+        warnings.append(
+            f"daytime partitioning: the night data gave no acceptable E0 on {temperature} in "
+            f"{int(fell_back.sum())} of {len(fell_back)} windows (pooled over the year from "
+            f"windows of at least {config.e0_min_points} night records spanning "
+            f"{config.e0_min_temperature_range} K within "
+            f"{max(config.daytime_e0_window_days)} days); "
+            f"{fallback_e0_text(day.parameters, fell_back, night.e0_annual)} was used there, "
+            "flagged 'fallback' in the daytime parameter table, so the two methods are not "
+            "independent in their E0")
+    return CentralStage(outcomes, form, day_evidence, warnings)

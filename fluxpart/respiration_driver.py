@@ -8,6 +8,8 @@ night data reject.
 
 from __future__ import annotations
 
+from typing import NamedTuple
+
 import numpy as np
 
 from . import method_failure, screening
@@ -50,3 +52,78 @@ def forced_temperature_note(driver, index, screened, is_night, threshold, config
     except FluxpartError:
         return None
     return temperature_choice.forced_driver_note(driver, choice)
+
+
+class DriverDecision(NamedTuple):
+    """The respiration temperature of a run and what its choice fitted.
+
+    Attributes
+    ----------
+    temperature : str
+        ``"tair"`` or ``"tsoil"``.
+    choice : fluxpart.partition.temperature_choice.TemperatureChoice or None
+        None where ``respiration_driver`` was set.
+    delay : int
+        Records by which the respiration temperature is delayed.
+    night_fits : dict
+        The choice's nighttime fits on the central measured NEE, by driver, where the
+        measured temperature is the screened series (reused, not fitted again).
+    warnings : list of str
+        A set temperature the night data reject; a soil temperature not weighed.
+    """
+
+    temperature: str
+    choice: object
+    delay: int
+    night_fits: dict
+    warnings: list
+
+
+def resolve(driver, frame, screened, is_night, threshold, config) -> DriverDecision:
+    """The run's respiration temperature (``"auto"`` chosen on the night NEE) and its fits.
+
+    Parameters
+    ----------
+    driver : str
+        ``respiration_driver`` as set.
+    frame : pandas.DataFrame
+        The prepared record.
+    screened : pandas.DataFrame
+        The screened record.
+    is_night : numpy.ndarray of bool
+        The night mask.
+    threshold : numpy.ndarray
+        The central run's u* threshold per record [m s-1].
+    config : Config
+        Settings.
+
+    Returns
+    -------
+    DriverDecision
+
+    References
+    ----------
+    Lloyd, J. and Taylor, J. A. (1994). On the temperature dependence of soil
+    respiration. Functional Ecology 8, 315-323.
+    """
+    warnings = []
+    forced = forced_temperature_note(driver, frame.index, screened, is_night, threshold, config)
+    warnings.extend([forced] if forced else [])
+    temperature, choice = chosen_temperature(driver, frame.index, screened, is_night,
+                                             threshold, config)
+    if (choice is not None and not np.isfinite(choice.tsoil_weight) and "tsoil" in frame.columns
+            and np.isfinite(frame["tsoil"].to_numpy(dtype=float)).any()):
+        # soil temperature is in the record but could not be weighed against air temperature
+        warnings.append(f"respiration temperature: {temperature} used, as {choice.reason}; the "
+                        "part of the Reco and GPP uncertainty from the choice of temperature is "
+                        "not quantified (reco_uncertainty_temperature_driver NaN)")
+    # the choice fitted each candidate on the central run's measured NEE: its fits are
+    # reused where the measured temperature is the same series
+    delay = 0 if choice is None else choice.delay_records
+    night_fits = {} if choice is None else {
+        name: fit for name, fit in choice.fits.items()
+        if np.array_equal(frame[name.removesuffix("_undelayed")].to_numpy(dtype=float),
+                          screened[name.removesuffix("_undelayed")].to_numpy(dtype=float),
+                          equal_nan=True)
+        or name == temperature}
+    return DriverDecision(temperature, choice, delay, night_fits, warnings)

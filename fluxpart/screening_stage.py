@@ -9,8 +9,13 @@ site-geometry verdict (:mod:`fluxpart.clock`) and the preflight of every stage
 
 from __future__ import annotations
 
-from . import clock, preflight, screening, solar
-from .errors import ConfigError, InsufficientDataError
+from typing import NamedTuple
+
+import numpy as np
+import pandas as pd
+
+from . import clock, preflight, screening, solar, unit_checks
+from .errors import ConfigError, ImplausibleValueError, InsufficientDataError
 
 
 def geometry_and_screening(frame, site, config, interval):
@@ -59,3 +64,83 @@ def refuse(verdict, findings, config) -> None:
         raise ConfigError(f"{text} (to process anyway, set [processing] clock_check = "
                           "\"warn\")")
     raise InsufficientDataError(f"{text} (fluxpart check lists every problem)")
+
+
+class ScreenedRecord(NamedTuple):
+    """What the screening stage hands the u* stage.
+
+    Attributes
+    ----------
+    geometry : pandas.DataFrame
+        Solar geometry per record (``potential_radiation`` [W m-2], ``sun_elevation`` [°]).
+    is_night : numpy.ndarray of bool
+        The night mask.
+    screens : fluxpart.screening.Screening
+        The screened record, its flags, reasons, counts and thresholds.
+    verdict : fluxpart.clock.ClockVerdict or None
+        None where ``clock_check = "off"``.
+    findings : list of fluxpart.preflight.Finding
+        Every preflight finding (none fatal: a fatal one stops the run).
+    clock_record : dict
+        The clock check as the provenance records it.
+    warnings : list of str
+        The unit checks of a caller's frame, the clock's problems and the findings of
+        the stages before the u* threshold, in this order.
+    """
+
+    geometry: pd.DataFrame
+    is_night: np.ndarray
+    screens: object
+    verdict: object
+    findings: list
+    clock_record: dict
+    warnings: list
+
+
+def screened_record(frame, site, config, interval, provenance, accepted) -> ScreenedRecord:
+    """Screen the record, check its units (a caller's frame), clock and every stage's needs.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The prepared record (:func:`fluxpart.canonical_frame.run_record`).
+    site : Site
+        The tower's location.
+    config : Config
+        Settings.
+    interval : int
+        Record interval [minutes].
+    provenance : dict or None
+        The run's provenance: without a ``reader`` record no reader checked the
+        frame's units, so :mod:`fluxpart.unit_checks` does here.
+    accepted : tuple of str
+        Variables whose units ``[input] accept_units`` keeps as they are.
+
+    Returns
+    -------
+    ScreenedRecord
+
+    Raises
+    ------
+    ImplausibleValueError
+        A unit mix-up in a caller's frame.
+    ConfigError, InsufficientDataError
+        A clock problem (``clock_check = "refuse"``) or a fatal finding (:func:`refuse`).
+    """
+    geometry, is_night, screens = geometry_and_screening(frame, site, config, interval)
+    warnings = []
+    if "reader" not in (provenance or {}):      # a caller's frame: no reader checked its units
+        refusal = unit_checks.frame_refusal(frame, interval, accept_units=accepted)
+        if refusal:
+            raise ImplausibleValueError(f"input: {refusal}")
+        warnings.extend(f"input: {text}" for text in unit_checks.frame_messages(
+            frame, geometry["potential_radiation"].to_numpy(), interval, accept_units=accepted))
+    verdict, findings = clock_and_preflight(frame, site, config, interval, geometry, is_night,
+                                            screens, (provenance or {}).get("reader"))
+    refuse(verdict, findings, config)
+    if verdict is not None:
+        warnings.extend(verdict.problems)
+    warnings.extend(str(f) for f in findings if f.stage not in ("u* threshold", "annual budget"))
+    clock_record = ({"setting": "off", "status": "not_checked"} if verdict is None
+                    else {"setting": config.clock_check, **verdict.to_dict()})
+    return ScreenedRecord(geometry, is_night, screens, verdict, findings, clock_record, warnings)

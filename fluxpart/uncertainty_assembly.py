@@ -16,11 +16,13 @@ measured with eddy covariance technique. Biogeosciences 3, 571-583.
 
 from __future__ import annotations
 
+from typing import NamedTuple
+
 import numpy as np
 import pandas as pd
 
 from . import budget, gap_sides, gapfill, method_failure, uncertainty
-from .errors import FluxpartError
+from .errors import FluxpartError, InsufficientDataError
 from .method_settings import (
     OTHER_TEMPERATURE,
     event_cut,
@@ -163,3 +165,91 @@ def scenario_spread(annual, outcomes, index, interval, year_keys) -> pd.DataFram
         # the range over the runs a year has (NaN-skipping, as DataFrame.max and min)
         out[f"{flux}_ustar_spread"] = np.fmax.reduce(table, axis=1) - np.fmin.reduce(table, axis=1)
     return out
+
+
+class UncertaintyStage(NamedTuple):
+    """The tables with their uncertainty, and the models behind it.
+
+    Attributes
+    ----------
+    timeseries : pandas.DataFrame
+        The per-record table with ``nee_random_error`` [µmol m-2 s-1].
+    daily, monthly, annual : pandas.DataFrame
+        With 1-sigma columns; the annual table with the uncertainty budget, the 95 %
+        interval and t CO2 ha-1; a method that could not fit blank.
+    parameters : dict of str to pandas.DataFrame
+        ``random_error_model`` and ``random_error_bins`` (where estimated) and
+        ``gapfill_error_model``.
+    unfitted : list of str
+        The partitioning methods that could not fit.
+    warnings : list of str
+        A random error not estimated, then the notes of :func:`budget_uncertainty`.
+    """
+
+    timeseries: pd.DataFrame
+    daily: pd.DataFrame
+    monthly: pd.DataFrame
+    annual: pd.DataFrame
+    parameters: dict
+    unfitted: list
+    warnings: list
+
+
+def uncertainty_stage(timeseries, budgets, central, inputs, driver, interval, config,
+                      year_keys) -> UncertaintyStage:
+    """The random error of NEE and every part of the budgets' uncertainty.
+
+    Parameters
+    ----------
+    timeseries : pandas.DataFrame
+        The per-record table (:func:`fluxpart.result_tables.timeseries_table`).
+    budgets : fluxpart.result_tables.BudgetTables
+        The daily, monthly and annual sums.
+    central : fluxpart.central_run.CentralStage
+        Every u* run (shifted by the respiration form), the form and the daytime
+        evidence on the respiration temperature.
+    inputs : fluxpart.ustar_runs.RunInputs
+        The fill's conditions and the night mask.
+    driver : fluxpart.respiration_driver.DriverDecision
+        The respiration temperature, its delay and the choice's nighttime fits.
+    interval : int
+        Record interval [minutes].
+    config : Config
+        Settings.
+    year_keys : numpy.ndarray
+        Budget year of each record.
+
+    Returns
+    -------
+    UncertaintyStage
+
+    References
+    ----------
+    Richardson, A. D. et al. (2006), see the module.
+    """
+    parameters, warnings = {}, []
+    try:
+        sigma, error_model = uncertainty.timeseries_random_error(
+            timeseries, rg_tolerance=config.random_error_rg_tolerance,
+            tair_tolerance=config.random_error_tair_tolerance,
+            vpd_tolerance=config.random_error_vpd_tolerance)
+        parameters["random_error_model"] = error_model.table()
+        parameters["random_error_bins"] = error_model.bins
+    except InsufficientDataError as error:
+        sigma, error_model = np.full(len(timeseries), np.nan), None
+        warnings.append(f"random error of NEE not estimated: {error}")
+    timeseries = timeseries.assign(nee_random_error=sigma)
+    night, day = central.outcomes["central"].night, central.outcomes["central"].day
+    daily, monthly, annual, gapfill_model, driver_notes = budget_uncertainty(
+        budgets.daily, budgets.monthly, budgets.annual, timeseries, central.outcomes, sigma,
+        inputs.conditions, inputs.is_night, night, day, driver.temperature, interval, config,
+        year_keys, driver.night_fits, error_model, central.form, driver.delay,
+        central.day_evidence)
+    warnings.extend(driver_notes)
+    parameters["gapfill_error_model"] = gapfill_model
+    # a method that could not fit has no sums, so no uncertainty of them either
+    unfitted = method_failure.failed_methods(night, day)
+    daily, monthly, annual = (method_failure.blank(table, unfitted)
+                              for table in (daily, monthly, annual))
+    annual = annual.join(uncertainty.carbon_accounting_units(annual))
+    return UncertaintyStage(timeseries, daily, monthly, annual, parameters, unfitted, warnings)

@@ -22,10 +22,66 @@ from typing import NamedTuple
 import numpy as np
 import pandas as pd
 
-from . import method_failure, screening, storage_check, uncertainty
+from . import gapfill, method_failure, night_uptake, screening, storage_check, uncertainty
 from .errors import InsufficientDataError
 from .method_settings import event_cut, fill_nee, nighttime_settings, respiration_temperature
 from .partition import daytime, nighttime
+
+
+class RunInputs(NamedTuple):
+    """What every u* run fills and partitions (:func:`fill_and_partition`'s first arguments).
+
+    Attributes
+    ----------
+    frame : pandas.DataFrame
+        The prepared record.
+    screened : pandas.DataFrame
+        The screened record (NEE of excluded mornings NaN after :func:`storage_release`).
+    filled_drivers : pandas.DataFrame
+        The gap-filled drivers (``rg_filled`` [W m-2], ``tair_filled`` [°C], ...).
+    conditions : pandas.DataFrame
+        The drivers the NEE fill compares (:func:`fluxpart.gapfill.driver_conditions`).
+    is_night : numpy.ndarray of bool
+        The night mask.
+    """
+
+    frame: pd.DataFrame
+    screened: pd.DataFrame
+    filled_drivers: pd.DataFrame
+    conditions: pd.DataFrame
+    is_night: np.ndarray
+
+
+def run_inputs(frame, screened, is_night, potential_radiation, config) -> RunInputs:
+    """Fill the drivers and set the conditions the NEE fill compares.
+
+    Parameters
+    ----------
+    frame, screened : pandas.DataFrame
+        The prepared and the screened record.
+    is_night : numpy.ndarray of bool
+        The night mask.
+    potential_radiation : numpy.ndarray
+        Potential (top-of-atmosphere) radiation [W m-2], for the clearness index.
+    config : Config
+        Settings.
+
+    Returns
+    -------
+    RunInputs
+
+    References
+    ----------
+    Reichstein, M. et al. (2005), Appendix A (marginal distribution sampling).
+    """
+    filled_drivers = gapfill.fill_drivers(
+        screened, rg_tolerance=config.rg_tolerance, max_window_days=config.gapfill_max_window_days,
+        interpolation_hours=config.gapfill_interpolation_hours)
+    conditions = gapfill.driver_conditions(filled_drivers, soil=True)
+    if config.gapfill_clearness_tolerance > 0:
+        conditions["clearness"] = gapfill.clearness_index(
+            conditions["rg"].to_numpy(), potential_radiation)
+    return RunInputs(frame, screened, filled_drivers, conditions, is_night)
 
 
 class RunOutcome(NamedTuple):
@@ -231,3 +287,73 @@ def storage_release(outcomes, run_warnings, screened, rerun, ustar, threshold, i
         notes.extend(storage_check.release_warnings(rows, int(more.sum()), stage))
         years = flagged
     return outcomes, run_warnings, screened, released, notes
+
+
+class RunsStage(NamedTuple):
+    """The u* runs after the storage check.
+
+    Attributes
+    ----------
+    outcomes : dict of str to RunOutcome
+        By run name, ``"central"`` first.
+    screened : pandas.DataFrame
+        The screened record, the excluded mornings' NEE NaN.
+    released : numpy.ndarray of bool
+        The measured records excluded as a morning release.
+    warnings : list of str
+        The runs' warnings, then those naming the release.
+    """
+
+    outcomes: dict
+    screened: pd.DataFrame
+    released: np.ndarray
+    warnings: list
+
+
+def runs_with_release(inputs: RunInputs, runs, driver, config, year_keys, interval, findings,
+                      step) -> RunsStage:
+    """Every u* run, redone without the mornings that show a release of stored CO2.
+
+    Parameters
+    ----------
+    inputs : RunInputs
+        The record, screened, with its filled drivers.
+    runs : dict of str to numpy.ndarray
+        Each run's u* threshold per record [m s-1] (``"central"`` first).
+    driver : fluxpart.respiration_driver.DriverDecision
+        The respiration temperature, its delay and the choice's nighttime fits.
+    config : Config
+        Settings (``storage_release``).
+    year_keys : numpy.ndarray
+        Budget year of each record.
+    interval : int
+        Record interval [minutes].
+    findings : list of fluxpart.preflight.Finding
+        The preflight findings; a partitioning error names the uptake in the dark
+        they found (:func:`fluxpart.night_uptake.named_in_failure`).
+    step : callable
+        Progress, called after each run of the first pass.
+
+    Returns
+    -------
+    RunsStage
+    """
+    def all_runs(screened_now, report=lambda label: None):
+        """The u* runs on `screened_now` and their warnings (progress only the first time)."""
+        # one after another: in two threads the runs cost ~12 % more CPU and ~16 MB more
+        # memory for no gain in wall time (GIL-bound); sites run in parallel in `batch`
+        notes = []
+        return threshold_runs(inputs._replace(screened=screened_now), runs, driver.temperature,
+                              config, driver.night_fits.get(driver.temperature), driver.delay,
+                              notes, report, year_keys), notes
+
+    # a partitioning error names the uptake in the dark preflight found (night_uptake)
+    with night_uptake.named_in_failure(findings):
+        outcomes, run_warnings = all_runs(inputs.screened, step)
+        # the release of CO2 stored on calm nights, seen in the mornings after them
+        # (storage_check); where it shows, those mornings are excluded and the runs redone
+        outcomes, run_warnings, screened, released, release_notes = storage_release(
+            outcomes, run_warnings, inputs.screened, all_runs,
+            inputs.frame["ustar"].to_numpy(dtype=float), runs["central"], inputs.is_night,
+            year_keys, interval, config.storage_release)
+    return RunsStage(outcomes, screened, released, [*run_warnings, *release_notes])

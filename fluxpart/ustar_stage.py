@@ -7,10 +7,13 @@ per-record thresholds of the u* runs (:func:`per_record`).
 
 from __future__ import annotations
 
+from typing import NamedTuple
+
 import numpy as np
 import pandas as pd
 
-from . import ustar
+from . import settings_notes, ustar, ustar_fixed, ustar_seasonal
+from .config import Config
 
 
 def ustar_thresholds(frame, screened, is_night, site, config):
@@ -81,3 +84,117 @@ def ustar_thresholds(frame, screened, is_night, site, config):
 
 def per_record(index, per_year: pd.Series) -> np.ndarray:
     return per_year.reindex(index.year).to_numpy(dtype=float)
+
+
+class UstarStage(NamedTuple):
+    """The u* thresholds a run uses.
+
+    Attributes
+    ----------
+    table : pandas.DataFrame
+        The u* table (:attr:`fluxpart.result.Result.ustar`).
+    draws : pandas.DataFrame
+        The bootstrap thresholds (empty for a fixed threshold).
+    central : pandas.Series
+        The threshold of each calendar year [m s-1].
+    scenarios : dict of str to pandas.Series
+        Each u* scenario's threshold per year [m s-1].
+    warnings : list of str
+        Where thresholds came from, unused or too low a fixed threshold, settings the
+        method never reads.
+    """
+
+    table: pd.DataFrame
+    draws: pd.DataFrame
+    central: pd.Series
+    scenarios: dict
+    warnings: list
+
+
+def threshold_stage(frame, screened, is_night, site, config) -> UstarStage:
+    """The u* thresholds (:func:`ustar_thresholds`) and the warnings about them.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The prepared record.
+    screened : pandas.DataFrame
+        The screened record (``nee`` [µmol m-2 s-1], ``ustar`` [m s-1], ``tair`` [°C]).
+    is_night : numpy.ndarray of bool
+        The night mask.
+    site : Site
+        The tower (latitude, canopy).
+    config : Config
+        Settings.
+
+    Returns
+    -------
+    UstarStage
+
+    References
+    ----------
+    Papale, D. et al. (2006). Towards a standardized processing of Net Ecosystem
+    Exchange measured with eddy covariance technique. Biogeosciences 3, 571-583.
+    """
+    table, draws, central, scenarios = ustar_thresholds(frame, screened, is_night, site, config)
+    warnings = list(ustar.source_notes(table, config.ustar_threshold))
+    unused = ustar.unused_threshold_note(table, config.ustar_threshold,
+                                         config.ustar_method, Config().ustar_threshold)
+    warnings.extend([unused] if unused else [])
+    if config.ustar_method == "fixed":
+        # a fixed threshold the night records reject as too low (round mistakes24)
+        low = ustar_fixed.fixed_threshold_note(
+            frame.index, screened["nee"].to_numpy(), screened["ustar"].to_numpy(),
+            screened["tair"].to_numpy(), is_night, site.latitude, config.ustar_threshold,
+            config, ustar.CANOPY_FLOORS[site.canopy] if config.ustar_min_threshold is None
+            else config.ustar_min_threshold)
+        warnings.extend([low] if low else [])
+    warnings.extend(settings_notes.ignored_settings(config))
+    return UstarStage(table, draws, central, scenarios, warnings)
+
+
+class RecordRuns(NamedTuple):
+    """The per-record thresholds of each u* run.
+
+    Attributes
+    ----------
+    year_runs : dict of str to numpy.ndarray
+        The central and scenario thresholds of each record's year [m s-1].
+    runs : dict of str to numpy.ndarray
+        The runs done: ``year_runs`` with seasons' own thresholds where they clearly
+        differ (and the year's as an extra run; :mod:`fluxpart.ustar_seasonal`).
+    warnings : list of str
+        The seasonal contrast's notes.
+    """
+
+    year_runs: dict
+    runs: dict
+    warnings: list
+
+
+def record_runs(index, latitude, stage: UstarStage, config) -> RecordRuns:
+    """The thresholds of every u* run per record.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        The record's stamps.
+    latitude : float
+        Site latitude [degrees north] (the seasons' hemisphere).
+    stage : UstarStage
+        The thresholds per year.
+    config : Config
+        Settings (``ustar_distinct_seasons``).
+
+    Returns
+    -------
+    RecordRuns
+    """
+    year_runs = {"central": per_record(index, stage.central),
+                 **{name: per_record(index, values)
+                    for name, values in stage.scenarios.items()}}
+    contrast = ustar_seasonal.seasonal_contrast(stage.table)
+    runs = ustar_seasonal.threshold_runs(index, latitude, stage.table, year_runs,
+                                         contrast, config.ustar_distinct_seasons)
+    return RecordRuns(year_runs, runs, list(ustar_seasonal.contrast_warnings(
+        contrast, config.ustar_distinct_seasons)))
