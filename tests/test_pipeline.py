@@ -562,17 +562,17 @@ def test_the_fallback_e0_warning_states_the_value_the_windows_took():
     record of three calendar years it also called a median of the years' E0 that no year
     had (236 K between 226 and 246 K) "the nighttime method's E0". It now states the
     value the flagged windows hold and, over several years, each year's E0."""
-    from fluxpart.pipeline import _fallback_e0_text
+    from fluxpart.central_run import fallback_e0_text
 
     parameters = pd.DataFrame({"e0": [301.0, 236.0, 236.0, 298.0],
                                "e0_source": ["year", "fallback", "fallback", "year"]})
     fell_back = parameters["e0_source"] == "fallback"
     years = pd.DataFrame({"e0": [246.0, 226.0, 249.0]},
                          index=pd.Index([2020, 2021, 2022], name="year"))
-    text = _fallback_e0_text(parameters, fell_back, years)
+    text = fallback_e0_text(parameters, fell_back, years)
     assert "(236 K;" in text
     assert "2020: 246 K, 2021: 226 K, 2022: 249 K" in text
-    one_year = _fallback_e0_text(parameters, fell_back, years.iloc[[1]])
+    one_year = fallback_e0_text(parameters, fell_back, years.iloc[[1]])
     assert one_year == "the nighttime method's E0 (236 K)"
 
 
