@@ -20,7 +20,11 @@ Stages (each a pure function of its own module):
    (:mod:`fluxpart.audit`).
 
 Nothing here computes science; it only passes :class:`~fluxpart.config.Config`
-settings to the stage functions and assembles their outputs.
+settings to the stage functions and hands each stage's record to the next:
+:mod:`fluxpart.canonical_frame` (0), :mod:`fluxpart.screening_stage` (1-2),
+:mod:`fluxpart.ustar_stage` (3), :mod:`fluxpart.respiration_driver`,
+:mod:`fluxpart.ustar_runs` (4-6), :mod:`fluxpart.central_run`,
+:mod:`fluxpart.result_tables` and :mod:`fluxpart.uncertainty_assembly` (7).
 """
 
 from __future__ import annotations
@@ -90,7 +94,8 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
     frame, _ = canonical_frame.prepare(frame, site)
     interval = canonical_frame.validate(frame)
     frame, edges = canonical_frame.budget_record(frame, config, interval)
-    geometry, is_night, screens = screening_stage.geometry_and_screening(frame, site, config, interval)
+    geometry, is_night, screens = screening_stage.geometry_and_screening(frame, site, config,
+                                                                         interval)
     verdict, findings = screening_stage.clock_and_preflight(
         frame, site, config, interval, geometry, is_night, screens,
         {"time_marks": time_marks, "shift_minutes": shift_applied_minutes, "columns": columns})
@@ -130,7 +135,8 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     interval = canonical_frame.validate(frame)
     frame, _ = canonical_frame.budget_record(frame, config, interval)
     _, is_night, screens = screening_stage.geometry_and_screening(frame, site, config, interval)
-    table, _, _, _ = ustar_stage.ustar_thresholds(frame, screens.screened, is_night, site, config)
+    table, _, _, _ = ustar_stage.ustar_thresholds(frame, screens.screened, is_night, site,
+                                                  config)
     # the reasons decided after the u* threshold (low u*, mornings after calm nights) are
     # not known here: a count of 0 would read as none
     return screens.counts.drop(labels=["low_ustar", "morning_release"], errors="ignore"), table

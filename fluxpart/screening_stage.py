@@ -19,6 +19,34 @@ from .errors import ConfigError, ImplausibleValueError, InsufficientDataError
 
 
 def geometry_and_screening(frame, site, config, interval):
+    """Solar geometry, the night mask and the screening of a record.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The prepared record (``rg`` [W m-2] and the other canonical variables).
+    site : Site
+        The tower's location.
+    config : Config
+        Settings (``night_rg_threshold`` [W m-2], despiking and Rg margins).
+    interval : int
+        Record interval [minutes].
+
+    Returns
+    -------
+    geometry : pandas.DataFrame
+        Potential radiation [W m-2] and sun elevation [°] per record.
+    is_night : numpy.ndarray of bool
+        Night records (:func:`fluxpart.solar.night_mask`: measured Rg below
+        ``night_rg_threshold``; where Rg is missing, the sun below the horizon).
+    screens : fluxpart.screening.Screening
+        The screened record, flags, reasons, counts and thresholds.
+
+    References
+    ----------
+    Papale, D. et al. (2006). Towards a standardized processing of Net Ecosystem
+    Exchange measured with eddy covariance technique. Biogeosciences 3, 571-583.
+    """
     geometry = solar.solar_geometry(frame.index, site, interval_minutes=interval)
     potential = geometry["potential_radiation"].to_numpy()
     is_night = solar.night_mask(frame["rg"].to_numpy(), potential, config.night_rg_threshold)
