@@ -31,7 +31,34 @@ from .ustar_runs import fit_daytime
 
 
 def averaged_form(frame, filled_drivers, central, is_night, temperature, config, delay=0):
-    """Both respiration forms' nighttime Reco on the central run, averaged as configured."""
+    """Both respiration forms' nighttime Reco on the central run, averaged as configured.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The prepared record (measured temperature, ``rg`` [W m-2]).
+    filled_drivers : pandas.DataFrame
+        The filled drivers (the filled respiration temperature [°C]).
+    central : fluxpart.ustar_runs.RunOutcome
+        The central u* run.
+    is_night : numpy.ndarray of bool
+        The night mask.
+    temperature : str
+        The respiration temperature.
+    config : Config
+        Settings (``respiration_form``).
+    delay : int, optional
+        Records by which the respiration temperature is delayed.
+
+    Returns
+    -------
+    fluxpart.partition.respiration_form.FormAverage
+        The forms' weights and the per-record shift of Reco [µmol m-2 s-1].
+
+    References
+    ----------
+    Lloyd, J. and Taylor, J. A. (1994), see the module.
+    """
     _, nee_measured, filled, night, _ = central
     try:
         if method_failure.failed(night):
@@ -63,8 +90,34 @@ def daytime_driver_evidence(frame, screened, filled_drivers, central, is_night, 
     """The daytime records' evidence on the respiration temperature, or None.
 
     The daytime method fitted again with the other temperature (undelayed air
-    temperature for a delayed one) and the central run's light-response curvature;
-    returns (:func:`temperature_choice.daytime_evidence`, the other temperature's name).
+    temperature for a delayed one) and the central run's light-response curvature.
+
+    Parameters
+    ----------
+    frame, screened : pandas.DataFrame
+        The prepared and the screened record.
+    filled_drivers : pandas.DataFrame
+        The filled drivers.
+    central : fluxpart.ustar_runs.RunOutcome
+        The central u* run.
+    is_night : numpy.ndarray of bool
+        The night mask.
+    temperature : str
+        The run's respiration temperature.
+    delay : int
+        Records by which it is delayed.
+    config : Config
+        Settings.
+
+    Returns
+    -------
+    tuple or None
+        (:func:`temperature_choice.daytime_evidence`, the other temperature's name);
+        None where a method failed or the other temperature is missing.
+
+    References
+    ----------
+    Lasslop, G. et al. (2010), see the module.
     """
     _, nee_measured, _, night, day = central
     if method_failure.failed(day) or method_failure.failed(night):

@@ -19,8 +19,39 @@ OTHER_TEMPERATURE = {"tair": "tsoil", "tsoil": "tair"}
 
 
 def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, values_only=False):
-    """MDS gap filling of NEE with the configured settings (also scored on artificial gaps);
-    `values_only`: the filled values as an array (:func:`gapfill.fill_marginal_values`)."""
+    """MDS gap filling of NEE with the configured settings (also scored on artificial gaps).
+
+    Parameters
+    ----------
+    nee_measured : numpy.ndarray
+        Measured NEE [µmol m-2 s-1], NaN where rejected or missing.
+    conditions : pandas.DataFrame
+        The drivers compared (``rg`` [W m-2], ``tair`` [°C], ``vpd`` [hPa], ...; a
+        ``clearness`` column where ``gapfill_clearness_tolerance`` is set).
+    index : pandas.DatetimeIndex
+        The record's stamps.
+    is_night : numpy.ndarray of bool
+        The night mask.
+    config : Config
+        Settings (tolerances, windows, donors, events).
+    gaps : numpy.ndarray of bool, optional
+        The records to fill (default: every missing one).
+    values_only : bool, optional
+        The filled values as an array (:func:`fluxpart.gapfill.fill_marginal_values`)
+        instead of the fill's table.
+
+    Returns
+    -------
+    pandas.DataFrame or numpy.ndarray
+        :func:`fluxpart.gapfill.fill_marginal`'s table, or the filled values
+        [µmol m-2 s-1].
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). On the separation of net ecosystem exchange into
+    assimilation and ecosystem respiration. Global Change Biology 11, 1424-1439
+    (Appendix A: marginal distribution sampling).
+    """
     fill = gapfill.fill_marginal_values if values_only else gapfill.fill_marginal
     return fill(
         nee_measured, conditions, index, is_night=is_night, donors=config.gapfill_donors,

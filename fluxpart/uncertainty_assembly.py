@@ -145,7 +145,31 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
 
 
 def scenario_spread(annual, outcomes, index, interval, year_keys) -> pd.DataFrame:
-    """Budget-year sums of each u* scenario and their spread (max - min) [g C m-2]."""
+    """Budget-year sums of each u* scenario and their spread (max - min) [g C m-2].
+
+    Parameters
+    ----------
+    annual : pandas.DataFrame
+        The annual table, by budget year.
+    outcomes : dict of str to fluxpart.ustar_runs.RunOutcome
+        Every u* run.
+    index : pandas.DatetimeIndex
+        The record's stamps.
+    interval : int
+        Record interval [minutes].
+    year_keys : numpy.ndarray
+        Budget year of each record.
+
+    Returns
+    -------
+    pandas.DataFrame
+        `annual` with ``<flux>_<run>`` sums and ``<flux>_ustar_spread`` (unchanged
+        where only the central run exists).
+
+    References
+    ----------
+    Papale, D. et al. (2006), see the module.
+    """
     if len(outcomes) == 1:
         return annual
     sums = {}

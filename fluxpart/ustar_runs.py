@@ -114,16 +114,46 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
                        delay=0, skip=(), nearest_year=False):
     """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
 
-    `night_fit`: the temperature choice's nighttime fit on the same measured NEE
-    and temperature, reused instead of fitting again. `central_fill`: the central
-    run's NEE fill, whose day records a u* scenario shares (below). `delay`:
-    records by which the respiration temperature is delayed (the choice's).
-    `skip`: methods not fitted (NaN; those the central run could not fit), and
-    `nearest_year`: the nighttime E0 of a year without one from the nearest year
-    (the central run's choice), for a u* scenario. The central run lets one method
-    that cannot fit be NaN and tries the nearest year's E0 only where the plain fit
-    fails (:mod:`fluxpart.method_failure`). Returns the outcome and the errors of
-    the methods that could not fit.
+    The central run lets one method that cannot fit be NaN and tries the nearest
+    year's E0 only where the plain fit fails (:mod:`fluxpart.method_failure`).
+
+    Parameters
+    ----------
+    frame, screened, filled_drivers, conditions, is_night
+        The fields of :class:`RunInputs`, in its order.
+    threshold : numpy.ndarray
+        The run's u* threshold per record [m s-1].
+    temperature : str
+        The respiration temperature, ``"tair"`` or ``"tsoil"``.
+    config : Config
+        Settings.
+    curvature : float or None
+        The daytime light-response curvature to keep (a scenario's: the central
+        run's), or None to fit it.
+    night_fit : optional
+        The temperature choice's nighttime fit on the same measured NEE and
+        temperature, reused instead of fitting again.
+    central_fill : pandas.DataFrame, optional
+        The central run's NEE fill, whose day records a u* scenario shares.
+    delay : int, optional
+        Records by which the respiration temperature is delayed (the choice's).
+    skip : tuple of str, optional
+        Methods not fitted (NaN; those the central run could not fit).
+    nearest_year : bool, optional
+        The nighttime E0 of a year without one from the nearest year (the central
+        run's choice), for a u* scenario.
+
+    Returns
+    -------
+    too_calm, nee_measured, filled, night, day
+        The fields of a :class:`RunOutcome`.
+    errors : dict of str to Exception
+        The methods that could not fit and why.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005), see the module (nighttime, marginal distribution sampling).
+    Lasslop, G. et al. (2010), see the module (daytime).
     """
     too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
     nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
@@ -161,7 +191,41 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
 
 def fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_filled, is_night,
                 config, curvature, night):
-    """The daytime method with the configured settings (`night`: the nighttime result)."""
+    """The daytime method with the configured settings.
+
+    Where no daytime night window has the temperature range for an E0 of its own, the
+    median of the nighttime method's E0 stands in (flagged ``fallback``), unless
+    ``e0_fallback`` is set.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The prepared record (its index).
+    nee_measured : numpy.ndarray
+        NEE after the u* filter [µmol m-2 s-1].
+    screened : pandas.DataFrame
+        The screened record (the random-error model's drivers).
+    filled_drivers : pandas.DataFrame
+        ``rg_filled`` [W m-2] and ``vpd_filled`` [hPa].
+    temperature_filled : numpy.ndarray
+        The filled respiration temperature [°C].
+    is_night : numpy.ndarray of bool
+        The night mask.
+    config : Config
+        Settings.
+    curvature : float or None
+        The light-response curvature to keep, or None to fit it.
+    night : fluxpart.partition.nighttime.NighttimeResult
+        The nighttime result (its E0 [K] for the fallback).
+
+    Returns
+    -------
+    fluxpart.partition.daytime.DaytimeResult
+
+    References
+    ----------
+    Lasslop, G. et al. (2010), see the module.
+    """
     # the daytime method estimates E0 from its own night windows; where none has the
     # temperature range for it (e.g. a damped soil temperature), the nighttime method's
     # E0 stands in, flagged "fallback" in the daytime parameter table and warned about
@@ -186,7 +250,30 @@ def fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_fille
 
 
 def daytime_error_model(index, nee_measured, screened, config):
-    """σ(NEE) of the random-error model for weighting the daytime fit, or None (unweighted)."""
+    """σ(NEE) of the random-error model for weighting the daytime fit, or None (unweighted).
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        The record's stamps.
+    nee_measured : numpy.ndarray
+        NEE after the u* filter [µmol m-2 s-1].
+    screened : pandas.DataFrame
+        ``rg`` [W m-2], ``tair`` [°C], ``vpd`` [hPa] of the paired records.
+    config : Config
+        Settings (``daytime_weighting``, the pairs' tolerances).
+
+    Returns
+    -------
+    callable or None
+        σ [µmol m-2 s-1] of an NEE value; None where not weighted or too few pairs.
+
+    References
+    ----------
+    Richardson, A. D. et al. (2006). A multi-site analysis of random error in
+    tower-based measurements of carbon and energy fluxes. Agricultural and Forest
+    Meteorology 136, 1-18.
+    """
     if config.daytime_weighting == "none":
         return None
     try:
@@ -210,6 +297,37 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
     day records and its light-response curvature. A scenario with too little data is
     left out with a warning appended to `warnings`. A method the central run could not
     fit is NaN in every run, named in `warnings` with the budget years `year_keys`.
+
+    Parameters
+    ----------
+    arguments : RunInputs
+        The record, screened, with its filled drivers.
+    runs : dict of str to numpy.ndarray
+        Each run's u* threshold per record [m s-1], ``"central"`` first.
+    temperature : str
+        The respiration temperature.
+    config : Config
+        Settings.
+    night_fit : optional
+        The temperature choice's nighttime fit (the central run's).
+    delay : int
+        Records by which the respiration temperature is delayed.
+    warnings : list of str
+        Appended to.
+    step : callable
+        Progress, called after each run ``stage_count`` foresees.
+    year_keys : numpy.ndarray, optional
+        Budget year of each record.
+
+    Returns
+    -------
+    dict of str to RunOutcome
+
+    References
+    ----------
+    Papale, D. et al. (2006). Towards a standardized processing of Net Ecosystem
+    Exchange measured with eddy covariance technique. Biogeosciences 3, 571-583
+    (the u* threshold's bootstrap percentiles as scenarios).
     """
     outcomes = {}
     curvature = config.daytime_curvature
@@ -254,9 +372,46 @@ def storage_release(outcomes, run_warnings, screened, rerun, ustar, threshold, i
     mornings after such nights are compared with the others
     (:func:`fluxpart.storage_check.morning_release`); where the excess is flagged and
     `mode` is ``"exclude"``, they are excluded from the measured NEE and ``rerun(screened)``
-    redoes the u* runs (returning their outcomes and warnings). Returns the outcomes and
-    their warnings, the screened record, the excluded records (bool) and the warnings
-    that name the release.
+    redoes the u* runs (returning their outcomes and warnings).
+
+    Parameters
+    ----------
+    outcomes : dict of str to RunOutcome
+        The u* runs on `screened`.
+    run_warnings : list of str
+        Their warnings.
+    screened : pandas.DataFrame
+        The screened record.
+    rerun : callable
+        ``rerun(screened)`` -> (outcomes, warnings).
+    ustar : numpy.ndarray
+        Friction velocity [m s-1].
+    threshold : numpy.ndarray
+        The central run's u* threshold per record [m s-1].
+    is_night : numpy.ndarray of bool
+        The night mask.
+    year_keys : numpy.ndarray
+        Budget year of each record.
+    interval : int
+        Record interval [minutes].
+    mode : str
+        ``storage_release``: ``"exclude"`` or ``"warn"``.
+
+    Returns
+    -------
+    outcomes, run_warnings
+        The runs (redone where mornings were excluded) and their warnings.
+    screened : pandas.DataFrame
+        With the excluded mornings' NEE NaN.
+    released : numpy.ndarray of bool
+        The measured records excluded.
+    notes : list of str
+        The warnings that name the release.
+
+    References
+    ----------
+    Finnigan, J. (2006). The storage term in eddy flux calculations. Agricultural and
+    Forest Meteorology 136, 108-113.
     """
     released = np.zeros(len(screened), dtype=bool)
     marked = np.zeros(len(screened), dtype=bool)   # the mornings excluded, measured or not

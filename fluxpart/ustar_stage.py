@@ -17,11 +17,45 @@ from .config import Config
 
 
 def ustar_thresholds(frame, screened, is_night, site, config):
-    """Return (u* table, bootstrap draws, central threshold per year, scenario thresholds).
+    """The u* threshold of each year, its bootstrap draws and the scenario thresholds.
 
-    The central threshold of a year is the detector's value on the data; years
-    without one fall back, flagged, to the fixed ``ustar_threshold``. Scenario
-    thresholds are the bootstrap percentiles named in ``ustar_scenarios``.
+    The central threshold of a year is the detector's value on the data; a year
+    without one takes the nearest year's (:func:`fluxpart.ustar.nearest_detected_year`,
+    source ``nearest_year``) and the fixed ``ustar_threshold`` only where no year has
+    one (source ``fallback``). Scenario thresholds are the bootstrap percentiles named
+    in ``ustar_scenarios``.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The prepared record (its index: the years).
+    screened : pandas.DataFrame
+        The screened record: ``nee`` [µmol m-2 s-1], ``ustar`` [m s-1], ``tair`` [°C].
+    is_night : numpy.ndarray of bool
+        The night mask.
+    site : Site
+        The tower (latitude for the seasons, canopy for the u* floor).
+    config : Config
+        Settings (``ustar_method``, ``ustar_threshold`` [m s-1], bootstrap and classes).
+
+    Returns
+    -------
+    table : pandas.DataFrame
+        The u* table per year and season with its source (:attr:`Result.ustar`).
+    draws : pandas.DataFrame
+        The bootstrap thresholds (empty for a fixed threshold).
+    central : pandas.Series
+        The threshold of each year [m s-1].
+    scenarios : dict of str to pandas.Series
+        ``ustar_pXX``: each scenario's threshold per year [m s-1].
+
+    References
+    ----------
+    Papale, D. et al. (2006). Towards a standardized processing of Net Ecosystem
+    Exchange measured with eddy covariance technique. Biogeosciences 3, 571-583.
+    Barr, A. G. et al. (2013). Use of change-point detection for friction-velocity
+    threshold evaluation in eddy-covariance studies. Agricultural and Forest
+    Meteorology 171-172, 31-45.
     """
     years = pd.Index(np.unique(frame.index.year), name="year")
     if config.ustar_method == "fixed":
@@ -83,6 +117,20 @@ def ustar_thresholds(frame, screened, is_night, site, config):
 
 
 def per_record(index, per_year: pd.Series) -> np.ndarray:
+    """A per-year value at each record of `index`.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        The record's stamps.
+    per_year : pandas.Series
+        Values by calendar year (a u* threshold [m s-1]).
+
+    Returns
+    -------
+    numpy.ndarray
+        The value of each record's year (NaN for a year without one).
+    """
     return per_year.reindex(index.year).to_numpy(dtype=float)
 
 
