@@ -26,7 +26,7 @@ MOVING_POINT_ONLY = ("ustar_classes", "ustar_plateau_share", "ustar_correlation_
                      "ustar_min_resolution", "ustar_annual", "ustar_plateau_reference")
 
 #: Parameters of u* threshold detection and its bootstrap, which change no number where
-#: the threshold is fixed (``fluxpart.pipeline._ustar_thresholds`` returns before detecting).
+#: the threshold is fixed (``fluxpart.ustar_stage.ustar_thresholds`` returns before detecting).
 DETECTION = ("ustar_temperature_classes", *MOVING_POINT_ONLY, "ustar_distinct_seasons",
              "ustar_min_threshold", "ustar_bootstrap_draws", "ustar_scenarios")
 

@@ -16,6 +16,10 @@ METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "c
                   "scenarios", "screening", "shared_records", "solar", "storage_check",
                   "uncertainty", "unit_checks", "ustar", "ustar_seasonal", "demo"}
 ORCHESTRATORS = {"pipeline", "batch", "cli", "verify", "diff", "report"}
+#: the stage modules `pipeline.process` calls in order, each handing the next a small record
+STAGE_MODULES = ("canonical_frame", "screening_stage", "ustar_stage", "respiration_driver",
+                 "ustar_runs", "central_run", "result_tables", "uncertainty_assembly",
+                 "method_settings")
 
 
 def _relative_imports(name: str) -> set:
@@ -65,15 +69,64 @@ def test_the_data_flow_map_names_every_stage_module_the_pipeline_calls():
     labelling, all of which process() calls."""
     text = (ROOT.parent / "DEVELOPERS.md").read_text(encoding="utf-8")
     block = text.split("## Architecture map", 1)[1].split("```", 2)[1]
-    source = (ROOT / "pipeline.py").read_text(encoding="utf-8")
-    imported = _relative_imports("pipeline.py") | {"daytime", "nighttime", "respiration_form",
-                                                   "temperature_choice"}
+    # the orchestrator is pipeline.py and the stage modules it calls (round thin1)
+    files = ["pipeline.py", *(f"{name}.py" for name in STAGE_MODULES)]
+    source = "\n".join((ROOT / name).read_text(encoding="utf-8") for name in files)
+    imported = set().union(*map(_relative_imports, files)) | {
+        "daytime", "nighttime", "respiration_form", "temperature_choice"}
     stages = METHOD_MODULES | {"schema", "timestamps", "daytime", "nighttime",
                                "respiration_form", "temperature_choice"}
     called = {name for name in imported & stages if re.search(rf"\b{name}\.\w+\(", source)}
     assert {"clock", "preflight", "budget", "gapfill"} <= called
     missing = {name for name in called if not re.search(rf"\b{name}\.\w+", block)}
     assert not missing, missing
+
+
+def test_the_orchestrator_is_thin_and_its_stage_modules_are_mapped():
+    """The brief's rule "one thin orchestrator; a new concern gets its own module"
+    (DEVELOPERS.md, Architecture map), checked on the source (round thin1): pipeline.py
+    defines its public functions only, `process` stays a list of stage calls (at most 90
+    lines of code beside its docstring), every stage module is in the module table, and
+    no stage module imports the orchestrator (no import cycle)."""
+    tree = ast.parse((ROOT / "pipeline.py").read_text(encoding="utf-8"))
+    defined = {node.name for node in tree.body
+               if isinstance(node, (ast.FunctionDef, ast.ClassDef))}
+    assert defined == {"check_record", "screening_summary", "stage_count", "process",
+                       "process_site_config"}, defined
+    process = next(node for node in tree.body if getattr(node, "name", "") == "process")
+    body = process.body[1:]                                   # without the docstring
+    assert body[-1].end_lineno - body[0].lineno + 1 <= 90
+    table = (ROOT.parent / "DEVELOPERS.md").read_text(encoding="utf-8").split(
+        "## Architecture map", 1)[1].split("## Rules of the house", 1)[0]
+    unmapped = [name for name in STAGE_MODULES if f"| `{name}.py` |" not in table]
+    assert not unmapped, unmapped
+    for name in STAGE_MODULES:
+        assert not _relative_imports(f"{name}.py") & ORCHESTRATORS, name
+    assert "pipeline" not in _loaded_by("import " + ", ".join(
+        f"fluxpart.{name}" for name in STAGE_MODULES))
+
+
+def test_the_stage_hand_overs_have_numpy_docstrings():
+    """The house rule (numpydoc's docstring standard, common practice) on the functions
+    each stage module offers the orchestrator (round thin1): Parameters and Returns."""
+    import importlib
+    import inspect
+
+    lacking = []
+    for path in ("canonical_frame.run_record", "screening_stage.screened_record",
+                 "ustar_stage.threshold_stage", "ustar_stage.record_runs",
+                 "respiration_driver.resolve", "ustar_runs.run_inputs",
+                 "ustar_runs.runs_with_release", "central_run.follow_ups",
+                 "result_tables.timeseries_table", "result_tables.budget_tables",
+                 "result_tables.screening_counts", "result_tables.run_provenance",
+                 "result_tables.result", "uncertainty_assembly.uncertainty_stage"):
+        module_name, public = path.rsplit(".", 1)
+        member = getattr(importlib.import_module(f"fluxpart.{module_name}"), public)
+        text = inspect.getdoc(member) or ""
+        for section in ("Parameters", "Returns"):
+            if f"{section}\n{'-' * len(section)}" not in text:
+                lacking.append(f"{path}: {section}")
+    assert not lacking, lacking
 
 
 def test_readme_output_files_name_every_table_a_result_folder_holds():

@@ -298,7 +298,7 @@ def test_the_run_compares_gaps_with_the_budget_years_of_year_start(monkeypatch):
     timestamps.budget_year_numbers), the labels of the annual table it compares with;
     before review29 the notes took the calendar year, so a June gap of a July-to-June
     budget was compared with the next budget year's gap-filling part."""
-    from fluxpart import Config, demo, pipeline
+    from fluxpart import Config, demo, gap_sides, pipeline
     from fluxpart.timestamps import budget_year_numbers
 
     seen = {}
@@ -307,7 +307,7 @@ def test_the_run_compares_gaps_with_the_budget_years_of_year_start(monkeypatch):
         seen.update(index=index, keys=year_keys, labels=list(gapfill_sigma.index))
         return []
 
-    monkeypatch.setattr(pipeline.gap_sides, "state_change_notes", spy)
+    monkeypatch.setattr(gap_sides, "state_change_notes", spy)
     frame, _ = demo.site_year(0)
     frame.loc[(frame.index >= "2021-06-05") & (frame.index < "2021-06-28"), "nee"] = np.nan
     with warnings.catch_warnings():
@@ -326,7 +326,7 @@ def test_the_run_counts_a_gap_across_the_green_up_and_names_it(monkeypatch):
     Removing either input of `record_inputs` fails this test."""
     import re
 
-    from fluxpart import demo, pipeline
+    from fluxpart import demo, pipeline, uncertainty
 
     frame, _ = demo.site_year(0)
     frame.loc[(frame.index >= "2021-03-26") & (frame.index < "2021-04-29"), "nee"] = np.nan
@@ -340,12 +340,12 @@ def test_the_run_counts_a_gap_across_the_green_up_and_names_it(monkeypatch):
     named = [w for w in full.warnings if "spans a change of state" in w]
     assert len(named) == 1 and "(34 days)" in named[0]
     sigma = float(re.search(r"counts ([\d.]+) g C m-2 \(1 sigma\)", named[0]).group(1))
-    original = pipeline.uncertainty.record_inputs
+    original = uncertainty.record_inputs
 
     def without_sides(*args, **kwargs):
         return original(*args, **{**kwargs, "fill_sides": None, "daytime_result": None})
 
-    monkeypatch.setattr(pipeline.uncertainty, "record_inputs", without_sides)
+    monkeypatch.setattr(uncertainty, "record_inputs", without_sides)
     plain = run()
     with_term, without = (r.annual["nee_uncertainty_gapfill"].iloc[0] for r in (full, plain))
     assert with_term**2 - without**2 == pytest.approx(sigma**2, abs=0.1 * sigma)

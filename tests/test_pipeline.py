@@ -434,10 +434,10 @@ def test_a_failing_ustar_scenario_is_left_out_with_a_warning(monkeypatch):
     out of the u* part (with a warning) instead of stopping the run; the central run is not
     (wiring test, issue 11)."""
     import fluxpart
-    from fluxpart import pipeline
+    from fluxpart import ustar_runs
     from fluxpart.errors import InsufficientDataError
 
-    real = pipeline._fill_and_partition
+    real = ustar_runs.fill_and_partition
     calls = []
 
     def failing_highest(*args, **kwargs):
@@ -447,7 +447,7 @@ def test_a_failing_ustar_scenario_is_left_out_with_a_warning(monkeypatch):
             raise InsufficientDataError("no acceptable Lloyd–Taylor window (test)")
         return real(*args, **kwargs)
 
-    monkeypatch.setattr(pipeline, "_fill_and_partition", failing_highest)
+    monkeypatch.setattr(ustar_runs, "fill_and_partition", failing_highest)
     frame, _ = fluxpart.demo.site_year(seed=0)
     frame = frame.loc["2021-04-01":"2021-07-29"]
     config = fluxpart.Config(ustar_bootstrap_draws=10, clock_check="off")
@@ -562,17 +562,17 @@ def test_the_fallback_e0_warning_states_the_value_the_windows_took():
     record of three calendar years it also called a median of the years' E0 that no year
     had (236 K between 226 and 246 K) "the nighttime method's E0". It now states the
     value the flagged windows hold and, over several years, each year's E0."""
-    from fluxpart.pipeline import _fallback_e0_text
+    from fluxpart.central_run import fallback_e0_text
 
     parameters = pd.DataFrame({"e0": [301.0, 236.0, 236.0, 298.0],
                                "e0_source": ["year", "fallback", "fallback", "year"]})
     fell_back = parameters["e0_source"] == "fallback"
     years = pd.DataFrame({"e0": [246.0, 226.0, 249.0]},
                          index=pd.Index([2020, 2021, 2022], name="year"))
-    text = _fallback_e0_text(parameters, fell_back, years)
+    text = fallback_e0_text(parameters, fell_back, years)
     assert "(236 K;" in text
     assert "2020: 246 K, 2021: 226 K, 2022: 249 K" in text
-    one_year = _fallback_e0_text(parameters, fell_back, years.iloc[[1]])
+    one_year = fallback_e0_text(parameters, fell_back, years.iloc[[1]])
     assert one_year == "the nighttime method's E0 (236 K)"
 
 

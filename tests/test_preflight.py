@@ -166,14 +166,15 @@ def test_a_year_whose_seasons_all_lack_nights_is_not_promised_the_fixed_threshol
     needs, yet the year's nights pooled as one season give a threshold (ustar._pooled_years,
     source pooled_year in the u* table). The check's finding had promised the fixed
     ustar_threshold outright while the table beside it showed the pooled year's."""
-    from fluxpart.pipeline import _geometry_and_screening, _ustar_thresholds
+    from fluxpart.screening_stage import geometry_and_screening
+    from fluxpart.ustar_stage import ustar_thresholds
 
     rng = np.random.default_rng(3)
     dark = ~(demo_frame["rg"].to_numpy() > 20.0)
     frame = demo_frame.assign(nee=demo_frame["nee"].where(~dark | (rng.random(len(dark)) < 0.06)))
     config = Config(ustar_bootstrap_draws=0)
-    _, is_night, screens = _geometry_and_screening(frame, demo.site(), config, 30)
-    table, *_ = _ustar_thresholds(frame, screens.screened, is_night, demo.site(), config)
+    _, is_night, screens = geometry_and_screening(frame, demo.site(), config, 30)
+    table, *_ = ustar_thresholds(frame, screens.screened, is_night, demo.site(), config)
     assert (table.loc[table["period"] == "year", "source"] == "pooled_year").all()
     _, findings = check_record(frame, demo.site(), config)
     ustar = [f.message for f in findings if f.stage == "u* threshold"]
@@ -189,14 +190,15 @@ def test_change_point_detector_need_counts_its_temperature_strata(demo_frame):
     and gives no threshold for want of a stratum of 150 (the year's 1171 nights pooled as
     one season then give 0.175 m s-1, 0.18 planted), and the check had said nothing (it
     counted 150 per season)."""
-    from fluxpart.pipeline import _geometry_and_screening, _ustar_thresholds
+    from fluxpart.screening_stage import geometry_and_screening
+    from fluxpart.ustar_stage import ustar_thresholds
 
     rng = np.random.default_rng(3)
     dark = ~(demo_frame["rg"].to_numpy() > 20.0)
     frame = demo_frame.assign(nee=demo_frame["nee"].where(~dark | (rng.random(len(dark)) < 0.3)))
     config = Config(ustar_method="change_point", ustar_bootstrap_draws=0)
-    _, is_night, screens = _geometry_and_screening(frame, demo.site(), config, 30)
-    table, *_ = _ustar_thresholds(frame, screens.screened, is_night, demo.site(), config)
+    _, is_night, screens = geometry_and_screening(frame, demo.site(), config, 30)
+    table, *_ = ustar_thresholds(frame, screens.screened, is_night, demo.site(), config)
     seasons = table[table["period"] != "year"]
     assert seasons["night_records"].between(150, 899).all()
     assert seasons["reason"].str.contains("no stratum with 150").all()

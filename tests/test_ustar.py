@@ -528,16 +528,17 @@ def test_pooled_year_threshold_reaches_the_table_and_warnings():
     usable night records the test needs)."""
     from fluxpart import demo
     from fluxpart.config import Config
-    from fluxpart.pipeline import _geometry_and_screening, _ustar_thresholds
+    from fluxpart.screening_stage import geometry_and_screening
+    from fluxpart.ustar_stage import ustar_thresholds
 
     frame, _ = demo.site_year(seed=1)
     rng = np.random.default_rng(3)
     dark = ~(frame["rg"].to_numpy() > 20.0)
     frame = frame.assign(nee=frame["nee"].where(~dark | (rng.random(len(frame)) < 0.06)))
     config = Config(ustar_bootstrap_draws=10)
-    _, is_night, screens = _geometry_and_screening(frame, demo.site(), config, 30)
-    table, _, central, scenarios = _ustar_thresholds(frame, screens.screened, is_night,
-                                                     demo.site(), config)
+    _, is_night, screens = geometry_and_screening(frame, demo.site(), config, 30)
+    table, _, central, scenarios = ustar_thresholds(frame, screens.screened, is_night,
+                                                    demo.site(), config)
     yearly = table[table["period"] == "year"].set_index("year")
     assert (yearly["source"] == "pooled_year").all()
     assert np.isfinite(yearly["threshold"]).all()

@@ -1,0 +1,231 @@
+"""What follows the u* runs on the central run: the respiration form, the daytime evidence.
+
+The nighttime Reco refitted with a constant Q10 and averaged with the Lloyd–Taylor
+Reco by their BIC weight (:mod:`fluxpart.partition.respiration_form`), the same shift
+added to every u* run (:func:`shifted`); the daytime method refitted on the other
+respiration temperature as evidence on the choice
+(:func:`fluxpart.partition.temperature_choice.daytime_evidence`); the text naming the
+E0 daytime windows without their own took.
+
+References
+----------
+Lloyd, J. and Taylor, J. A. (1994). On the temperature dependence of soil respiration.
+Functional Ecology 8, 315-323.
+Lasslop, G. et al. (2010). Separation of net ecosystem exchange into assimilation
+and respiration using a light response curve approach. Global Change Biology 16,
+187-208.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from typing import NamedTuple
+
+import numpy as np
+
+from . import gapfill, method_failure, uncertainty
+from .errors import FluxpartError, InsufficientDataError
+from .method_settings import OTHER_TEMPERATURE, nighttime_settings, respiration_temperature
+from .partition import pieces, respiration_form, temperature_choice
+from .ustar_runs import fit_daytime
+
+
+def averaged_form(frame, filled_drivers, central, is_night, temperature, config, delay=0):
+    """Both respiration forms' nighttime Reco on the central run, averaged as configured.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The prepared record (measured temperature, ``rg`` [W m-2]).
+    filled_drivers : pandas.DataFrame
+        The filled drivers (the filled respiration temperature [°C]).
+    central : fluxpart.ustar_runs.RunOutcome
+        The central u* run.
+    is_night : numpy.ndarray of bool
+        The night mask.
+    temperature : str
+        The respiration temperature.
+    config : Config
+        Settings (``respiration_form``).
+    delay : int, optional
+        Records by which the respiration temperature is delayed.
+
+    Returns
+    -------
+    fluxpart.partition.respiration_form.FormAverage
+        The forms' weights and the per-record shift of Reco [µmol m-2 s-1].
+
+    References
+    ----------
+    Lloyd, J. and Taylor, J. A. (1994), see the module.
+    """
+    _, nee_measured, filled, night, _ = central
+    try:
+        if method_failure.failed(night):
+            raise InsufficientDataError("the nighttime method could not fit")
+        exponential = respiration_form.exponential_reco(
+            frame.index, nee_measured, filled["value"].to_numpy(dtype=float),
+            respiration_temperature(frame, temperature, delay),
+            respiration_temperature(filled_drivers, temperature, delay, True), is_night,
+            respiration_driver=temperature,
+            **nighttime_settings(config, frame["rg"].to_numpy(dtype=float), frame.index,
+                                 method_failure.borrowed_e0(night)))
+    except FluxpartError:
+        exponential = None
+    weight = 0.0 if exponential is None else uncertainty.driver_weight(
+        nee_measured, is_night, night.reco, exponential)
+    return respiration_form.average_forms(night.reco, exponential, weight,
+                                          config.respiration_form)
+
+
+def shifted(night, shift):
+    """A nighttime result with `shift` [µmol m-2 s-1] added to its Reco and GPP."""
+    if not np.any(shift):
+        return night
+    return dataclasses.replace(night, reco=night.reco + shift, gpp=night.gpp + shift)
+
+
+def daytime_driver_evidence(frame, screened, filled_drivers, central, is_night, temperature,
+                            delay, config):
+    """The daytime records' evidence on the respiration temperature, or None.
+
+    The daytime method fitted again with the other temperature (undelayed air
+    temperature for a delayed one) and the central run's light-response curvature.
+
+    Parameters
+    ----------
+    frame, screened : pandas.DataFrame
+        The prepared and the screened record.
+    filled_drivers : pandas.DataFrame
+        The filled drivers.
+    central : fluxpart.ustar_runs.RunOutcome
+        The central u* run.
+    is_night : numpy.ndarray of bool
+        The night mask.
+    temperature : str
+        The run's respiration temperature.
+    delay : int
+        Records by which it is delayed.
+    config : Config
+        Settings.
+
+    Returns
+    -------
+    tuple or None
+        (:func:`temperature_choice.daytime_evidence`, the other temperature's name);
+        None where a method failed or the other temperature is missing.
+
+    References
+    ----------
+    Lasslop, G. et al. (2010), see the module.
+    """
+    _, nee_measured, _, night, day = central
+    if method_failure.failed(day) or method_failure.failed(night):
+        return None
+    other = "tair" if delay else OTHER_TEMPERATURE[temperature]
+    if f"{other}_filled" not in filled_drivers.columns:
+        return None
+    other_filled = respiration_temperature(filled_drivers, other, 0, True)
+    if not np.isfinite(other_filled).any():
+        return None
+    try:
+        other_day = fit_daytime(frame, nee_measured, screened, filled_drivers, other_filled,
+                                is_night, config, float(day.parameters["curvature"].iloc[0]),
+                                night)
+    except FluxpartError:
+        return None
+    statistic = temperature_choice.daytime_evidence(
+        nee_measured, ~np.asarray(is_night, dtype=bool), day.reco - day.gpp,
+        other_day.reco - other_day.gpp, frame.index.normalize())
+    return statistic, other
+
+
+def fallback_e0_text(parameters, fell_back, e0_annual) -> str:
+    """The E0 the daytime windows without their own took (`fit_daytime`: the median of
+    the nighttime method's per-record E0), named with each calendar year's E0 where the
+    record has several: the median of a record's records can be a value no year has."""
+    value = float(parameters.loc[fell_back.to_numpy(), "e0"].iloc[0])
+    years = e0_annual.dropna(subset=["e0"]) if "e0" in getattr(e0_annual, "columns", ()) \
+        else None
+    if years is None or len(years) < 2:
+        return f"the nighttime method's E0 ({value:.0f} K)"
+    listed = ", ".join(f"{int(year)}: {float(e0):.0f} K"
+                       for year, e0 in years["e0"].items())
+    return (f"the median over the record of the nighttime method's E0 ({value:.0f} K; "
+            f"calendar years {listed})")
+
+
+class CentralStage(NamedTuple):
+    """The u* runs with the respiration form's shift, and the central run's evidence.
+
+    Attributes
+    ----------
+    outcomes : dict of str to fluxpart.ustar_runs.RunOutcome
+        Every run, its nighttime Reco and GPP shifted by the respiration form's average.
+    form : fluxpart.partition.respiration_form.FormAverage
+        The two respiration forms' weights and the per-record shift [µmol m-2 s-1].
+    day_evidence : tuple or None
+        (statistic, other temperature's name) of :func:`daytime_driver_evidence`.
+    warnings : list of str
+        Events a fill crossed, pieces without a window of their own, the daytime E0
+        fallback, in this order.
+    """
+
+    outcomes: dict
+    form: object
+    day_evidence: object
+    warnings: list
+
+
+def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
+    """The respiration form averaged into every run, and the central run's checks.
+
+    Parameters
+    ----------
+    inputs : fluxpart.ustar_runs.RunInputs
+        The record, screened as the runs were (after the storage check), with its
+        filled drivers.
+    outcomes : dict of str to fluxpart.ustar_runs.RunOutcome
+        The u* runs.
+    driver : fluxpart.respiration_driver.DriverDecision
+        The respiration temperature and its delay.
+    config : Config
+        Settings.
+
+    Returns
+    -------
+    CentralStage
+
+    References
+    ----------
+    Lloyd, J. and Taylor, J. A. (1994). On the temperature dependence of soil
+    respiration. Functional Ecology 8, 315-323.
+    """
+    frame, screened, filled_drivers, _, is_night = inputs
+    temperature, delay = driver.temperature, driver.delay
+    # the nighttime method's central Reco averaged over the two respiration forms; the
+    # same per-record shift in every u* run keeps their spread the threshold's alone
+    form = averaged_form(frame, filled_drivers, outcomes["central"], is_night, temperature,
+                         config, delay)
+    outcomes = {name: outcome._replace(night=shifted(outcome.night, form.shift))
+                for name, outcome in outcomes.items()}
+    _, _, filled, night, day = outcomes["central"]
+    warnings = list(gapfill.crossed_event_notes(frame.index, config.events,
+                                                filled.attrs.pop("events_crossed", [])))
+    if config.events:
+        warnings.extend(pieces.window_notes(frame.index, gapfill.event_breaks(
+            frame.index, config.events), night.rref_windows, day.parameters))
+    day_evidence = daytime_driver_evidence(frame, screened, filled_drivers, outcomes["central"],
+                                           is_night, temperature, delay, config)
+    fell_back = day.parameters["e0_source"] == "fallback"
+    if config.e0_fallback is None and fell_back.any():
+        warnings.append(
+            f"daytime partitioning: the night data gave no acceptable E0 on {temperature} in "
+            f"{int(fell_back.sum())} of {len(fell_back)} windows (pooled over the year from "
+            f"windows of at least {config.e0_min_points} night records spanning "
+            f"{config.e0_min_temperature_range} K within "
+            f"{max(config.daytime_e0_window_days)} days); "
+            f"{fallback_e0_text(day.parameters, fell_back, night.e0_annual)} was used there, "
+            "flagged 'fallback' in the daytime parameter table, so the two methods are not "
+            "independent in their E0")
+    return CentralStage(outcomes, form, day_evidence, warnings)

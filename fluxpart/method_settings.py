@@ -1,0 +1,99 @@
+"""The configured settings of the method calls that several stages make alike.
+
+The NEE gap fill by marginal distribution sampling (:func:`fill_nee`, the central
+fill, the u* scenarios' fills, the artificial gaps and the one-sided fills of long
+gaps), the nighttime method's keyword settings, the events' breaks of the
+partitioning windows and the respiration temperature series: one place, so that
+every stage calls the methods with the same :class:`~fluxpart.config.Config`.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from . import gapfill
+from .partition import temperature_choice
+
+#: The respiration temperature a run does not use, of the one it uses.
+OTHER_TEMPERATURE = {"tair": "tsoil", "tsoil": "tair"}
+
+
+def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, values_only=False):
+    """MDS gap filling of NEE with the configured settings (also scored on artificial gaps).
+
+    Parameters
+    ----------
+    nee_measured : numpy.ndarray
+        Measured NEE [µmol m-2 s-1], NaN where rejected or missing.
+    conditions : pandas.DataFrame
+        The drivers compared (``rg`` [W m-2], ``tair`` [°C], ``vpd`` [hPa], ...; a
+        ``clearness`` column where ``gapfill_clearness_tolerance`` is set).
+    index : pandas.DatetimeIndex
+        The record's stamps.
+    is_night : numpy.ndarray of bool
+        The night mask.
+    config : Config
+        Settings (tolerances, windows, donors, events).
+    gaps : numpy.ndarray of bool, optional
+        The records to fill (default: every missing one).
+    values_only : bool, optional
+        The filled values as an array (:func:`fluxpart.gapfill.fill_marginal_values`)
+        instead of the fill's table.
+
+    Returns
+    -------
+    pandas.DataFrame or numpy.ndarray
+        :func:`fluxpart.gapfill.fill_marginal`'s table, or the filled values
+        [µmol m-2 s-1].
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). On the separation of net ecosystem exchange into
+    assimilation and ecosystem respiration. Global Change Biology 11, 1424-1439
+    (Appendix A: marginal distribution sampling).
+    """
+    fill = gapfill.fill_marginal_values if values_only else gapfill.fill_marginal
+    return fill(
+        nee_measured, conditions, index, is_night=is_night, donors=config.gapfill_donors,
+        rg_tolerance=config.rg_tolerance, tair_tolerance=config.tair_tolerance,
+        vpd_tolerance=config.vpd_tolerance, max_window_days=config.gapfill_max_window_days,
+        min_donors=config.gapfill_min_donors, gaps=gaps, rg_window=config.gapfill_rg_window,
+        night_rg_threshold=config.night_rg_threshold,
+        clearness=conditions["clearness"] if "clearness" in conditions else None,
+        clearness_tolerance=config.gapfill_clearness_tolerance,
+        estimate=config.gapfill_estimate, breaks=gapfill.event_breaks(index, config.events))
+
+
+def nighttime_settings(config, rg, index, nearest_year=False) -> dict:
+    """Keyword settings of :func:`nighttime.partition_nighttime` from `config`, with the
+    measured global radiation `rg` [W m-2] its low-light Rref rule needs, the events'
+    pieces of the record `index` (only where events are declared), and `nearest_year`:
+    a year without an E0 of its own takes the nearest year's."""
+    extra = {"e0_nearest_year": True} if nearest_year else {}
+    extra.update(event_cut(index, config))
+    return {**extra, "e0_window_days": config.e0_window_days,
+            "e0_window_step_days": config.e0_window_step_days,
+            "e0_min_points": config.e0_min_points,
+            "e0_min_temperature_range": config.e0_min_temperature_range,
+            "e0_bounds": config.e0_bounds, "e0_max_relative_error": config.e0_max_relative_error,
+            "e0_best_windows": config.e0_best_windows, "e0_fallback": config.e0_fallback,
+            "rref_window_days": config.rref_window_days,
+            "rref_min_points": config.rref_min_points,
+            "rref_low_light_rg": config.rref_low_light_rg, "rg": rg,
+            "e0_method": config.e0_method}
+
+
+def event_cut(index, config) -> dict:
+    """``breaks`` of the partitionings' windows where `config` declares events, else none
+    (a run without events calls them exactly as before)."""
+    return {"breaks": gapfill.event_breaks(index, config.events)} if config.events else {}
+
+
+def respiration_temperature(table, name, delay, filled=False) -> np.ndarray:
+    """The respiration driver `name` from `table` [°C], delayed by `delay` records.
+
+    ``filled``: the gap-filled column (evaluated at every record; the first
+    records take the first value), else the measured one (NaN-padded for fits).
+    """
+    values = table[f"{name}_filled" if filled else name].to_numpy(dtype=float)
+    return temperature_choice.delayed(values, delay, pad="first" if filled else "nan")

@@ -1,0 +1,174 @@
+"""Solar geometry, screening, and the checks that stop a run before any fit.
+
+The night mask from potential radiation (:mod:`fluxpart.solar`), the screening of
+plausible ranges, the site's flag and spikes (:mod:`fluxpart.screening`), the clock and
+site-geometry verdict (:mod:`fluxpart.clock`) and the preflight of every stage
+(:mod:`fluxpart.preflight`); :func:`refuse` stops on a clock problem (unless
+``clock_check`` allows it) or a condition a stage cannot run with.
+"""
+
+from __future__ import annotations
+
+from typing import NamedTuple
+
+import numpy as np
+import pandas as pd
+
+from . import clock, preflight, screening, solar, unit_checks
+from .errors import ConfigError, ImplausibleValueError, InsufficientDataError
+
+
+def geometry_and_screening(frame, site, config, interval):
+    """Solar geometry, the night mask and the screening of a record.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The prepared record (``rg`` [W m-2] and the other canonical variables).
+    site : Site
+        The tower's location.
+    config : Config
+        Settings (``night_rg_threshold`` [W m-2], despiking and Rg margins).
+    interval : int
+        Record interval [minutes].
+
+    Returns
+    -------
+    geometry : pandas.DataFrame
+        Potential radiation [W m-2] and sun elevation [°] per record.
+    is_night : numpy.ndarray of bool
+        Night records (:func:`fluxpart.solar.night_mask`: measured Rg below
+        ``night_rg_threshold``; where Rg is missing, the sun below the horizon).
+    screens : fluxpart.screening.Screening
+        The screened record, flags, reasons, counts and thresholds.
+
+    References
+    ----------
+    Papale, D. et al. (2006). Towards a standardized processing of Net Ecosystem
+    Exchange measured with eddy covariance technique. Biogeosciences 3, 571-583.
+    """
+    geometry = solar.solar_geometry(frame.index, site, interval_minutes=interval)
+    potential = geometry["potential_radiation"].to_numpy()
+    is_night = solar.night_mask(frame["rg"].to_numpy(), potential, config.night_rg_threshold)
+    screens = screening.screen(
+        frame, potential, is_night, despike_z=config.despike_z,
+        despike_block_days=config.despike_block_days, rg_margin=config.rg_margin,
+        rg_relative_margin=config.rg_relative_margin)
+    return geometry, is_night, screens
+
+
+def clock_and_preflight(frame, site, config, interval, geometry, is_night, screens,
+                        reader=None):
+    """The clock verdict (None when ``clock_check = "off"``) and the preflight findings."""
+    reader = reader or {}
+    verdict = None
+    if config.clock_check != "off":
+        verdict = clock.check_clock(
+            frame.index, frame["rg"].to_numpy(dtype=float), site.latitude, site.longitude,
+            site.utc_offset, interval, time_marks=reader.get("time_marks"),
+            shift_applied_minutes=float(reader.get("shift_minutes") or 0.0))
+    findings = preflight.preflight(
+        frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),
+        screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval,
+        reader.get("columns"), sun_elevation=geometry["sun_elevation"].to_numpy())
+    findings = preflight.defer_to_clock(findings, None if verdict is None else verdict.status)
+    if verdict is not None:
+        findings = preflight.shade_at_clock_shift(
+            findings, verdict, screens.screened["rg"].to_numpy(dtype=float), frame.index,
+            site.latitude, site.longitude, site.utc_offset, interval, reader.get("columns"))
+    return verdict, findings
+
+
+def refuse(verdict, findings, config) -> None:
+    """Stop before any fit on a clock problem (unless allowed) or a fatal finding."""
+    clock_problems = list(verdict.problems) if verdict is not None else []
+    if config.clock_check != "refuse":
+        clock_problems = []
+    fatal = [str(finding) for finding in findings if finding.fatal]
+    if not clock_problems and not fatal:
+        return
+    text = "; ".join(clock_problems + fatal)
+    if clock_problems:
+        raise ConfigError(f"{text} (to process anyway, set [processing] clock_check = "
+                          "\"warn\", in Python Config(clock_check=\"warn\"))")
+    raise InsufficientDataError(f"{text} (fluxpart check lists every problem)")
+
+
+class ScreenedRecord(NamedTuple):
+    """What the screening stage hands the u* stage.
+
+    Attributes
+    ----------
+    geometry : pandas.DataFrame
+        Solar geometry per record (``potential_radiation`` [W m-2], ``sun_elevation`` [°]).
+    is_night : numpy.ndarray of bool
+        The night mask.
+    screens : fluxpart.screening.Screening
+        The screened record, its flags, reasons, counts and thresholds.
+    verdict : fluxpart.clock.ClockVerdict or None
+        None where ``clock_check = "off"``.
+    findings : list of fluxpart.preflight.Finding
+        Every preflight finding (none fatal: a fatal one stops the run).
+    clock_record : dict
+        The clock check as the provenance records it.
+    warnings : list of str
+        The unit checks of a caller's frame, the clock's problems and the findings of
+        the stages before the u* threshold, in this order.
+    """
+
+    geometry: pd.DataFrame
+    is_night: np.ndarray
+    screens: object
+    verdict: object
+    findings: list
+    clock_record: dict
+    warnings: list
+
+
+def screened_record(frame, site, config, interval, provenance, accepted) -> ScreenedRecord:
+    """Screen the record, check its units (a caller's frame), clock and every stage's needs.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The prepared record (:func:`fluxpart.canonical_frame.run_record`).
+    site : Site
+        The tower's location.
+    config : Config
+        Settings.
+    interval : int
+        Record interval [minutes].
+    provenance : dict or None
+        The run's provenance: without a ``reader`` record no reader checked the
+        frame's units, so :mod:`fluxpart.unit_checks` does here.
+    accepted : tuple of str
+        Variables whose units ``[input] accept_units`` keeps as they are.
+
+    Returns
+    -------
+    ScreenedRecord
+
+    Raises
+    ------
+    ImplausibleValueError
+        A unit mix-up in a caller's frame.
+    ConfigError, InsufficientDataError
+        A clock problem (``clock_check = "refuse"``) or a fatal finding (:func:`refuse`).
+    """
+    geometry, is_night, screens = geometry_and_screening(frame, site, config, interval)
+    warnings = []
+    if "reader" not in (provenance or {}):      # a caller's frame: no reader checked its units
+        refusal = unit_checks.frame_refusal(frame, interval, accept_units=accepted)
+        if refusal:
+            raise ImplausibleValueError(f"input: {refusal}")
+        warnings.extend(f"input: {text}" for text in unit_checks.frame_messages(
+            frame, geometry["potential_radiation"].to_numpy(), interval, accept_units=accepted))
+    verdict, findings = clock_and_preflight(frame, site, config, interval, geometry, is_night,
+                                            screens, (provenance or {}).get("reader"))
+    refuse(verdict, findings, config)
+    if verdict is not None:
+        warnings.extend(verdict.problems)
+    warnings.extend(str(f) for f in findings if f.stage not in ("u* threshold", "annual budget"))
+    clock_record = ({"setting": "off", "status": "not_checked"} if verdict is None
+                    else {"setting": config.clock_check, **verdict.to_dict()})
+    return ScreenedRecord(geometry, is_night, screens, verdict, findings, clock_record, warnings)

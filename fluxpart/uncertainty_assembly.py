@@ -1,0 +1,279 @@
+"""The uncertainty of a run's budgets, assembled from the stage outputs.
+
+The random error of NEE (paired observations), the gap-filling error scored on
+artificial gaps, the one-sided fills of long gaps, the other respiration temperature's
+Reco, the parameter and u* parts: 1-sigma columns of the daily and monthly tables and
+the annual uncertainty budget with its 95 % interval (:mod:`fluxpart.uncertainty`);
+the budget-year sums of each u* run and their spread (:func:`scenario_spread`).
+
+References
+----------
+Richardson, A. D. et al. (2006). A multi-site analysis of random error in tower-based
+measurements of carbon and energy fluxes. Agricultural and Forest Meteorology 136, 1-18.
+Papale, D. et al. (2006). Towards a standardized processing of Net Ecosystem Exchange
+measured with eddy covariance technique. Biogeosciences 3, 571-583.
+"""
+
+from __future__ import annotations
+
+from typing import NamedTuple
+
+import numpy as np
+import pandas as pd
+
+from . import budget, gap_sides, gapfill, method_failure, uncertainty
+from .errors import FluxpartError, InsufficientDataError
+from .method_settings import (
+    OTHER_TEMPERATURE,
+    event_cut,
+    fill_nee,
+    nighttime_settings,
+    respiration_temperature,
+)
+from .partition import nighttime, temperature_choice
+
+
+def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions,
+                       is_night, night, day, temperature, interval, config, year_keys,
+                       night_fits, error_model=None, form=None, delay=0, day_evidence=None):
+    """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals.
+
+    `night_fits`: nighttime fits on the central measured NEE and the input's temperature
+    columns (by driver), reused for the other driver's Reco. `day_evidence`: (statistic,
+    other temperature's name) of :func:`fluxpart.central_run.daytime_driver_evidence`, or
+    None. Also returns the warning of a temperature choice the daytime records contradict
+    (a list).
+    """
+    index = timeseries.index
+    nee_measured = timeseries["nee_measured"].to_numpy(dtype=float)
+    measured = np.isfinite(nee_measured)
+    noise = np.where(measured, sigma, 0.0)
+    # only the held-out records are scored, so only they are filled (the same fills);
+    # each artificial gap hides the drivers its real gap lacked
+    gap_errors = uncertainty.artificial_gap_errors(
+        nee_measured, noise, is_night,
+        lambda values, hidden: fill_nee(values, conditions.mask(hidden), index, is_night,
+                                        config, gaps=measured & np.isnan(values),
+                                        values_only=True),
+        seed=uncertainty.artificial_gap_seed(nee_measured), records_per_day=24 * 60 // interval,
+        conditions_missing=conditions.isna().to_numpy())
+    gapfill_model = uncertainty.gapfill_error_model(gap_errors)
+    # each long gap filled from one side only: a change of the canopy within it
+    sides = gap_sides.one_sided_fills(
+        nee_measured, *gap_sides.long_gaps(~measured, 24 * 60 // interval,
+                                           breaks=gapfill.event_breaks(index, config.events)),
+        lambda values, gaps: fill_nee(values, conditions, index, is_night, config,
+                                      gaps=gaps, values_only=True))
+    runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
+                                "reco_nighttime": n.reco, "gpp_daytime": d.gpp,
+                                "reco_daytime": d.reco}, index=index)
+            for name, (_, _, filled, n, d) in outcomes.items()}
+    nee_filled = timeseries["nee_filled"].to_numpy(dtype=float)
+    settings = nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float), index,
+                                  method_failure.borrowed_e0(night))
+
+    def refit(fit, driver):
+        """Reco of `fit` (partition_nighttime's arguments) on `driver`; None if it fails."""
+        try:
+            return fit(index, nee_measured, nee_filled, timeseries[driver].to_numpy(dtype=float),
+                       timeseries[f"{driver}_filled"].to_numpy(dtype=float), is_night,
+                       respiration_driver=driver, **settings)
+        except FluxpartError:
+            return None
+
+    other = OTHER_TEMPERATURE[temperature]
+    other_reco = None
+    if method_failure.failed(night):
+        pass                     # no nighttime Reco to compare the other driver's with
+    elif delay and "tair_undelayed" in night_fits:
+        # the other candidate of a delayed air temperature is the undelayed one
+        try:
+            other_reco = nighttime.apply_fit(
+                night_fits["tair_undelayed"], nee_filled,
+                timeseries["tair_filled"].to_numpy(dtype=float)).reco
+        except FluxpartError:
+            other_reco = None
+    elif f"{other}_filled" in timeseries.columns and other in timeseries.columns:
+        if other in night_fits:    # the temperature choice fitted it on the central NEE
+            try:
+                other_reco = nighttime.apply_fit(
+                    night_fits[other], nee_filled,
+                    timeseries[f"{other}_filled"].to_numpy(dtype=float)).reco
+            except FluxpartError:
+                other_reco = None
+        else:
+            other_reco = refit(lambda *args, **kwargs: nighttime.partition_nighttime(
+                *args, **kwargs).reco, other)
+    if other_reco is not None and form is not None:
+        # compared with the central Reco, which carries the respiration form's shift
+        other_reco = other_reco + form.shift
+    inputs = uncertainty.record_inputs(
+        index, runs["central"], runs if len(runs) > 1 else {}, measured, noise, is_night,
+        respiration_temperature(timeseries, temperature, delay, True), night, day.parameters,
+        gapfill_model, rref_window_days=config.rref_window_days, other_driver_reco=other_reco,
+        nee_measured=nee_measured,
+        fill_window_days=timeseries["nee_fill_window_days"].to_numpy(dtype=float),
+        fill_noise_sigma=None if error_model is None else error_model.predict(
+            timeseries["nee_filled"].to_numpy(dtype=float)), respiration_form=form,
+        day_driver_statistic=None if day_evidence is None else day_evidence[0],
+        day_evidence_critical=temperature_choice.DAYTIME_EVIDENCE_Z,
+        fill_sides=sides, daytime_result=day,
+        **event_cut(index, config))
+    notes = []
+    if (other_reco is not None and day_evidence is not None and inputs.driver_weight == 0.5
+            and abs(day_evidence[0]) > temperature_choice.DAYTIME_EVIDENCE_Z):
+        central = f"{temperature} delayed by {delay * interval / 60:g} h" if delay else temperature
+        notes.append(temperature_choice.conflict_note(central, day_evidence[1],
+                                                      day_evidence[0]))
+    percentiles = config.ustar_scenarios
+    tables = []
+    for table, keys in ((daily, index.normalize()),
+                        (monthly, index.to_period("M").to_timestamp())):
+        parts = uncertainty.period_uncertainty(inputs, keys, interval,
+                                               ustar_percentiles=percentiles)
+        sigmas = [c for c in parts.columns if c.endswith("_sigma")]
+        tables.append(table.join(parts[sigmas].reindex(table.index)))
+    parts = uncertainty.period_uncertainty(inputs, year_keys, interval,
+                                           ustar_percentiles=percentiles)
+    random = uncertainty.monte_carlo_sums(noise, index, interval,
+                                          draws=config.random_error_draws, seed=config.seed,
+                                          year_keys=year_keys)
+    annual = annual.join(uncertainty.uncertainty_budget(annual, random, parts))
+    notes.extend(gap_sides.state_change_notes(index, nee_filled, *sides, interval,
+                                              annual["nee_uncertainty_gapfill"], year_keys))
+    return tables[0], tables[1], annual, gapfill_model, notes
+
+
+def scenario_spread(annual, outcomes, index, interval, year_keys) -> pd.DataFrame:
+    """Budget-year sums of each u* scenario and their spread (max - min) [g C m-2].
+
+    Parameters
+    ----------
+    annual : pandas.DataFrame
+        The annual table, by budget year.
+    outcomes : dict of str to fluxpart.ustar_runs.RunOutcome
+        Every u* run.
+    index : pandas.DatetimeIndex
+        The record's stamps.
+    interval : int
+        Record interval [minutes].
+    year_keys : numpy.ndarray
+        Budget year of each record.
+
+    Returns
+    -------
+    pandas.DataFrame
+        `annual` with ``<flux>_<run>`` sums and ``<flux>_ustar_spread`` (unchanged
+        where only the central run exists).
+
+    References
+    ----------
+    Papale, D. et al. (2006), see the module.
+    """
+    if len(outcomes) == 1:
+        return annual
+    sums = {}
+    for name, (_, _, filled, night, day) in outcomes.items():
+        per_record = pd.DataFrame({"nee": filled["value"].to_numpy(),
+                                   "gpp_nighttime": night.gpp, "reco_nighttime": night.reco,
+                                   "gpp_daytime": day.gpp, "reco_daytime": day.reco},
+                                  index=index)
+        carbon = per_record * float(budget.flux_to_carbon(1.0, interval))
+        sums[name] = carbon.groupby(year_keys).sum(min_count=1).reindex(annual.index)
+    out = annual.copy()
+    for flux in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
+        table = np.stack([s[flux].to_numpy() for s in sums.values()], axis=1)   # years x runs
+        for name, column in zip(sums, table.T, strict=True):
+            if name != "central":
+                out[f"{flux}_{name}"] = column
+        # the range over the runs a year has (NaN-skipping, as DataFrame.max and min)
+        out[f"{flux}_ustar_spread"] = np.fmax.reduce(table, axis=1) - np.fmin.reduce(table, axis=1)
+    return out
+
+
+class UncertaintyStage(NamedTuple):
+    """The tables with their uncertainty, and the models behind it.
+
+    Attributes
+    ----------
+    timeseries : pandas.DataFrame
+        The per-record table with ``nee_random_error`` [µmol m-2 s-1].
+    daily, monthly, annual : pandas.DataFrame
+        With 1-sigma columns; the annual table with the uncertainty budget, the 95 %
+        interval and t CO2 ha-1; a method that could not fit blank.
+    parameters : dict of str to pandas.DataFrame
+        ``random_error_model`` and ``random_error_bins`` (where estimated) and
+        ``gapfill_error_model``.
+    unfitted : list of str
+        The partitioning methods that could not fit.
+    warnings : list of str
+        A random error not estimated, then the notes of :func:`budget_uncertainty`.
+    """
+
+    timeseries: pd.DataFrame
+    daily: pd.DataFrame
+    monthly: pd.DataFrame
+    annual: pd.DataFrame
+    parameters: dict
+    unfitted: list
+    warnings: list
+
+
+def uncertainty_stage(timeseries, budgets, central, inputs, driver, interval, config,
+                      year_keys) -> UncertaintyStage:
+    """The random error of NEE and every part of the budgets' uncertainty.
+
+    Parameters
+    ----------
+    timeseries : pandas.DataFrame
+        The per-record table (:func:`fluxpart.result_tables.timeseries_table`).
+    budgets : fluxpart.result_tables.BudgetTables
+        The daily, monthly and annual sums.
+    central : fluxpart.central_run.CentralStage
+        Every u* run (shifted by the respiration form), the form and the daytime
+        evidence on the respiration temperature.
+    inputs : fluxpart.ustar_runs.RunInputs
+        The fill's conditions and the night mask.
+    driver : fluxpart.respiration_driver.DriverDecision
+        The respiration temperature, its delay and the choice's nighttime fits.
+    interval : int
+        Record interval [minutes].
+    config : Config
+        Settings.
+    year_keys : numpy.ndarray
+        Budget year of each record.
+
+    Returns
+    -------
+    UncertaintyStage
+
+    References
+    ----------
+    Richardson, A. D. et al. (2006), see the module.
+    """
+    parameters, warnings = {}, []
+    try:
+        sigma, error_model = uncertainty.timeseries_random_error(
+            timeseries, rg_tolerance=config.random_error_rg_tolerance,
+            tair_tolerance=config.random_error_tair_tolerance,
+            vpd_tolerance=config.random_error_vpd_tolerance)
+        parameters["random_error_model"] = error_model.table()
+        parameters["random_error_bins"] = error_model.bins
+    except InsufficientDataError as error:
+        sigma, error_model = np.full(len(timeseries), np.nan), None
+        warnings.append(f"random error of NEE not estimated: {error}")
+    timeseries = timeseries.assign(nee_random_error=sigma)
+    night, day = central.outcomes["central"].night, central.outcomes["central"].day
+    daily, monthly, annual, gapfill_model, driver_notes = budget_uncertainty(
+        budgets.daily, budgets.monthly, budgets.annual, timeseries, central.outcomes, sigma,
+        inputs.conditions, inputs.is_night, night, day, driver.temperature, interval, config,
+        year_keys, driver.night_fits, error_model, central.form, driver.delay,
+        central.day_evidence)
+    warnings.extend(driver_notes)
+    parameters["gapfill_error_model"] = gapfill_model
+    # a method that could not fit has no sums, so no uncertainty of them either
+    unfitted = method_failure.failed_methods(night, day)
+    daily, monthly, annual = (method_failure.blank(table, unfitted)
+                              for table in (daily, monthly, annual))
+    annual = annual.join(uncertainty.carbon_accounting_units(annual))
+    return UncertaintyStage(timeseries, daily, monthly, annual, parameters, unfitted, warnings)
