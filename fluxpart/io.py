@@ -49,7 +49,14 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from ._validate import other_system_path_hint, read_toml, refuse_binary, unicode_form_hint
+from ._validate import (
+    markup_message,
+    other_system_path_hint,
+    owner_file_message,
+    read_toml,
+    refuse_binary,
+    unicode_form_hint,
+)
 from .config import Config, setting_text, suggest_key
 from .errors import (
     ConfigError,
@@ -139,7 +146,16 @@ _FLOAT_SPELLINGS_OF_NAN = ("nan", "+nan", "-nan")
 #: documentation of printf's infinity and NaN output (m)): no value, like "nan" and "inf"
 _MSVC_NAN = r"[+-]?1\.#(?:ind|qnan|snan)0*"
 _MSVC_INFINITY = r"[+-]?1\.#inf0*"
+#: NaN as C's printf writes it with its implementation's characters in brackets,
+#: "[-]nan(n-char-sequence)" (ISO/IEC 9899:2011 7.21.6.1; strtod reads "NAN(...)" back,
+#: 7.22.1.3 (m)): "-nan(ind)" and "nan(snan)" of the Microsoft C runtime since Visual
+#: Studio 2015 (Microsoft printf documentation (m)); no value, like "nan"
+_C_NAN = r"[+-]?nan\([0-9a-z_]*\)"
 _WHITESPACE = "whitespace"
+#: What opens a comment line: "#" (shell, Python, R), "//" and "/*" (C, C++, Java), "%"
+#: (MATLAB, Octave), "!" (Fortran 90), ";" (INI files, assembler) (each language's
+#: reference (m)); no record of a delimited table starts with one of them
+_COMMENT_MARKS = ("#", "//", "/*", "%", "!", ";")
 _GLOB_CHARACTERS = set("*?[")
 #: A number written with digit grouping (thousands separators) for each decimal mark:
 #: "1.034,5" or "1.034" where the decimal mark is a comma, "1,034.5" or "1,034" where it
@@ -1825,6 +1841,9 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
         raise InputFileError(_cannot_read(path, error)) from None
     except MemoryError:
         raise InputFileError(_too_large(path)) from None
+    owner = owner_file_message(path, len(data))
+    if owner:
+        raise InputFileError(owner)
     data = _decompressed(data, path)
     refuse_binary(data, path)
     # a byte-order mark names the encoding, also over [input] encoding: a file saved with
@@ -1930,6 +1949,9 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     the header (a delimiter closing the header line) are not counted: data lines
     without that delimiter are complete, and the empty column is left out.
     """
+    markup = markup_message(text, path, rows_before_header)
+    if markup:
+        raise InputFileError(markup)
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
     options = {"dtype": str, "keep_default_na": False, "na_filter": False}
@@ -2337,7 +2359,7 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
                 "it would move one column left), and a record cut short looks the same; "
                 "write each missing value as a code (e.g. -9999, listed in [input] missing) "
                 "in a copy of the file, or save it with a delimiter (\",\", \";\" or a tab)")
-        if text_lines[lines[row] - 1].lstrip().startswith(("#", "//", ";")) and not (
+        if text_lines[lines[row] - 1].lstrip().startswith(_COMMENT_MARKS) and not (
                 delimiter == ";" and text_lines[lines[row] - 1].lstrip().startswith(";")):
             # a note written among the records ("# sensor cleaned"): no record cut short
             # (layouts25: the line named a value cut mid-number)
@@ -3662,7 +3684,8 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
         # only the cells that are no number are tried as the old Windows spellings
         rows = np.flatnonzero(bad)
         odd = folded.iloc[rows]
-        nan_like = odd.str.fullmatch(_MSVC_NAN).to_numpy(dtype=bool, na_value=False)
+        nan_like = odd.str.fullmatch(_MSVC_NAN).to_numpy(dtype=bool, na_value=False) \
+            | odd.str.fullmatch(_C_NAN).to_numpy(dtype=bool, na_value=False)
         inf_like = odd.str.fullmatch(_MSVC_INFINITY).to_numpy(dtype=bool, na_value=False)
         if nan_like.any() or inf_like.any():
             is_code, numbers = is_code.copy(), numbers.copy()

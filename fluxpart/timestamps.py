@@ -503,6 +503,18 @@ _NUMERIC_CLOCKS = (
     ("Julian dates (days since noon UTC of 1 January 4713 BC)", 86400.0, "1970-01-01",
      (2.42e6, 2.49e6), 2440587.5),
 )
+#: Clocks that count from 1904-01-01 in the same units as one of _NUMERIC_CLOCKS, whose
+#: values fall in its range four years (days) or 66 years (seconds) off: LabVIEW's time
+#: stamp and the classic Mac OS clock count seconds since 1904-01-01 (LabVIEW
+#: documentation of its time stamp; Apple, Inside Macintosh (m)), and Excel's 1904 date
+#: system (Excel for Mac before 2011) counts days since 1904-01-01 (Microsoft, "Date
+#: systems in Excel" (m)). Named beside the first reading: the numbers cannot tell which.
+_NUMERIC_CLOCKS_1904 = {
+    "seconds since 1970-01-01 UTC (Unix time)":
+        ("seconds since 1904-01-01 (LabVIEW, classic Mac OS)", 1.0),
+    "spreadsheet day numbers (days since 1899-12-30, as Excel and LibreOffice count)":
+        ("days since 1904-01-01 (Excel's 1904 date system)", 86400.0),
+}
 
 
 def _summary_lines(text: pd.Series, failed: np.ndarray) -> str:
@@ -550,8 +562,17 @@ def _numeric_clock(text: pd.Series) -> str:
         first = pd.Timestamp(epoch) + pd.Timedelta(seconds=(float(numbers[0]) - shift)
                                                    * seconds)
         zone = " UTC" if "UTC" in name else ""
+        other = ""
+        if name in _NUMERIC_CLOCKS_1904:
+            # layouts28: LabVIEW seconds were named as Unix time of 2087, one reading only
+            other_name, unit = _NUMERIC_CLOCKS_1904[name]
+            then = pd.Timestamp("1904-01-01") + pd.Timedelta(seconds=float(numbers[0]) * unit)
+            if 1971 <= then.year <= 2100:      # the plausible stamps of _NUMERIC_CLOCKS
+                other = (f", or {other_name} (in which it is "
+                         f"{then.round('min'):%Y-%m-%d %H:%M})")
         return (f"the stamps are {name}, not dates ({text.iloc[0].strip()!r} is "
-                f"{first.round('min'):%Y-%m-%d %H:%M}{zone}), which fluxpart does not read: "
+                f"{first.round('min'):%Y-%m-%d %H:%M}{zone}){other}, which fluxpart does not "
+                "read: "
                 "write the column as dates and times in a copy of the file (e.g. 2021-06-01 "
                 "13:30; in a spreadsheet, format the column as yyyy-mm-dd hh:mm before saving "
                 "as CSV) and set [input] time_format to match"
@@ -772,6 +793,12 @@ def _written_where_it_changes(text: pd.Series, failed: np.ndarray, time_columns)
             "records have no date: write it on every line in a copy of the file")
 
 
+#: A UTC offset after a stamp, alone or after UTC or GMT, in brackets or not ("
+#: (UTC+01:00)", " GMT+0100", " [+01:00]"; ISO 8601-1:2019 writes offsets as
+#: +hh:mm or +hhmm (m))
+_OFFSET_TAIL = re.compile(r"\s*[(\[]?\s*(?:UTC|GMT)?\s*(?P<offset>[+-]\d{2}:?\d{2})\s*[)\]]?\s*$")
+
+
 def _text_around_stamps(text: pd.Series, failed: np.ndarray, time_format: str) -> str:
     """A hint where every stamp carries the same text before or after it that the format
     lacks ("'" of a spreadsheet's text cell, " Uhr", " h") or writes the ISO 8601 "T"
@@ -804,10 +831,19 @@ def _text_around_stamps(text: pd.Series, failed: np.ndarray, time_format: str) -
     if " " in time_format and "T" in stamp:
         candidates.append(("the stamps write 'T' (ISO 8601) between date and time",
                            time_format.replace(" ", "T", 1)))
+    offset = _OFFSET_TAIL.search(stamp)
+    if offset and "%z" not in time_format:
+        # layouts28: a UTC offset after each stamp in words or brackets (" (UTC+01:00)")
+        # was refused with no cause; %z reads it, each stamp by its own offset
+        tail = offset.group(0)
+        digits = offset.group("offset")
+        candidates.append((f"the stamps end in {tail!r}, a UTC offset",
+                           time_format + tail.replace("%", "%%").replace(digits, "%z")))
     for what, candidate in candidates:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            read = pd.to_datetime(cells, format=candidate, errors="coerce")
+            read = pd.to_datetime(cells, format=candidate, errors="coerce",
+                                  utc="%z" in candidate)
         if read.notna().all():
             return (f"{what}, which time_format lacks: time_format = "
                     f"{setting_text(candidate)} reads every stamp")
