@@ -1874,6 +1874,12 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
     # the byte-order mark, also where files saved with one were joined end to end (a
     # header line starting with U+FEFF then is not the header line it repeats)
     text = text.replace("\ufeff", "")
+    # the same mark of a UTF-8 file read once as Latin-1 or cp1252 and saved again as
+    # UTF-8 ("\u00ef\u00bb\u00bf", the mark's three bytes as three characters; no
+    # name or record starts with them): as the mark (layouts28: the time column was
+    # not found, "did you mean 'ï»¿stamp'?")
+    if "\u00ef\u00bb\u00bf" in text:
+        text = re.sub("(?m)^\u00ef\u00bb\u00bf", "", text)
     # the end-of-file mark of CP/M and MS-DOS text files (Ctrl-Z, 0x1A; DOS `copy` and
     # old logger programs write it after the last line (m)) is no content: dropped as the
     # byte-order mark is (layouts25: it was dropped as "a record cut short or a footer",

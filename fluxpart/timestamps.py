@@ -850,6 +850,41 @@ def _text_around_stamps(text: pd.Series, failed: np.ndarray, time_format: str) -
     return ""
 
 
+def _marked_stamps(text: pd.Series, failed: np.ndarray, time_format: str) -> str:
+    """A hint where the stamps that fail are the others' form with a mark after them
+    ("02:30*", "02:30 B", "02:30 (2)") that the format reads without it; else ''.
+
+    A logger or an export marks some records so: the second pass of the hour that
+    clocks repeat when daylight saving ends, or records edited by hand. The mark is
+    named, not dropped: what it means the file does not say (layouts28: refused as a
+    bare parse failure).
+
+    References
+    ----------
+    Python documentation, ``datetime.strptime``: the whole string must match the
+    format (m).
+    """
+    if failed.all() or not failed.any() or time_format.upper() == "ISO8601":
+        return ""
+    cells = text[failed].str.strip()
+    marks = cells.str.extract(r"(\s*(?:[*#!?+]+|\(\d+\)|\[\d+\]|[A-Za-z]))$", expand=False)
+    if marks.isna().any():
+        return ""
+    bare = pd.Series([cell[:len(cell) - len(mark)] for cell, mark in
+                      zip(cells, marks, strict=True)], index=cells.index)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        read = pd.to_datetime(bare, format=time_format, errors="coerce")
+    if read.isna().any():
+        return ""
+    shown = ", ".join(repr(mark.strip()) for mark in dict.fromkeys(marks))
+    return (f"{int(failed.sum())} stamp(s) end in a mark the other stamps lack ({shown}; "
+            f"{cells.iloc[0]!r}): a mark of the hour that clocks repeat when daylight "
+            "saving ends, or of records edited by hand? What it means the file does not "
+            "say: remove the mark in a copy of the file (with [input] time_zone, the "
+            "repeated hour is read in record order, its first pass summer time)")
+
+
 #: A format ending in hours and minutes written as a decimal number ("%H.%M", "%H,%M")
 _DECIMAL_CLOCK = re.compile(r"%H([.,])%M$")
 
@@ -1238,6 +1273,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = "; " + _other_format(text.iloc[first], time_format)
         elif _text_around_stamps(text, failed, time_format):
             hint = "; " + _text_around_stamps(text, failed, time_format)
+        elif _marked_stamps(text, failed, time_format):
+            hint = "; " + _marked_stamps(text, failed, time_format)
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
@@ -1258,6 +1295,10 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                              f"{exchanged}")
     index = pd.DatetimeIndex(parsed)
     index, rounded = _round_to_minute(index)
+    buddhist = _buddhist_era(index)
+    if buddhist:
+        raise TimestampError(f"{_time_setting(time_columns)}: the stamps of {source!r} "
+                             f"{buddhist}")
     offset_converted = 0
     if index.tz is not None:
         if utc_offset is None:
@@ -1275,6 +1316,41 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                         offset_converted=offset_converted, daylight_saving=daylight,
                         utc_zone=from_utc,
                         rounded_to_minute=rounded, date_only=int(date_only.sum()))
+
+
+#: Years of the Buddhist Era as the Thai solar calendar counts them: the Gregorian year
+#: + 543 (the calendar of Thailand since 1941, which Thai-locale spreadsheets and
+#: Windows write in dates (m)). Stamps whose years all lie in the Buddhist Era's years
+#: of 1900-2200 CE are over 400 years ahead read as written, which no measured or
+#: simulated site-year is (our bound).
+_BUDDHIST_ERA_OFFSET = 543
+_BUDDHIST_ERA_YEARS = (1900 + 543, 2200 + 543)
+
+
+def _buddhist_era(index: pd.DatetimeIndex) -> str:
+    """Name stamps dated in the Buddhist Era's years (2564 for 2021), or "".
+
+    Read as written they were the year 2564 (a leap year: 29 February a day-long gap)
+    without a word (layouts28); the file cannot say the calendar, so both readings are
+    named and the stamps are refused.
+
+    References
+    ----------
+    Thai solar calendar: Buddhist Era year = Gregorian year + 543 (m).
+    """
+    if index.empty or index.hasnans:
+        return ""
+    low, high = int(index.year.min()), int(index.year.max())
+    if not (_BUDDHIST_ERA_YEARS[0] <= low and high <= _BUDDHIST_ERA_YEARS[1]):
+        return ""
+    first = low - _BUDDHIST_ERA_OFFSET
+    last = high - _BUDDHIST_ERA_OFFSET
+    years = f"{low}" if low == high else f"{low} to {high}"
+    gregorian = f"{first}" if first == last else f"{first} to {last}"
+    return (f"are dated {years}, over 400 years ahead; in the Buddhist Era of the Thai "
+            f"solar calendar (Gregorian year + 543, as a Thai-locale spreadsheet writes "
+            f"dates) they are {gregorian}: write Gregorian years in a copy of the file "
+            "(format the column with the Gregorian calendar before saving)")
 
 
 def check_time_zone(time_zone, utc_offset: float, when=None) -> str:

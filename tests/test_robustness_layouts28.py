@@ -295,3 +295,75 @@ def test_offset_right_after_the_stamp_keeps_its_hint(tmp_path):
     _write(path, [s + " GMT+0100" for s in _stamps(ends)], _cells(values))
     with pytest.raises(TimestampError, match="ends in a UTC offset: add %z"):
         _read(path)
+
+
+# ------------------------------------------------ the Buddhist Era's years
+def test_buddhist_era_years_are_refused_naming_both_readings(tmp_path):
+    """The Thai solar calendar counts the Gregorian year + 543 (m): stamps of 2564 were
+    read as written, the year 2564 (a leap year, so 29 February a day-long gap), without
+    a word; now refused naming both years."""
+    ends, values = _records(96)
+    path = tmp_path / "mast.csv"
+    _write(path, [f"{e.year + 543}-{e:%m-%d %H:%M}" for e in ends], _cells(values))
+    with pytest.raises(TimestampError) as caught:
+        _read(path)
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    assert "dated 2564" in message and "they are 2021" in message
+    assert 2564 - 543 == ends[0].year
+
+
+def test_years_of_this_century_are_not_taken_for_the_buddhist_era(tmp_path):
+    """Kept behaviour: Gregorian stamps read as written (known truth)."""
+    ends, values = _records(96)
+    path = tmp_path / "mast.csv"
+    _write(path, _stamps(ends), _cells(values))
+    frame, _ = _read(path)
+    assert (frame.index.year == 2021).all()
+
+
+# ------------------------------------------------ a byte-order mark encoded twice
+def test_byte_order_mark_encoded_twice_is_dropped(tmp_path):
+    """The UTF-8 byte-order mark EF BB BF (Unicode, section 23.8 (m)) read as Latin-1
+    is the three characters "ï»¿"; saved again as UTF-8 they led the first name, and the
+    time column was not found. Now dropped as the mark is; the records read as written
+    (known truth)."""
+    ends, values = _records(96)
+    path = tmp_path / "mast.csv"
+    _write(path, _stamps(ends), _cells(values))
+    mark = b"\xef\xbb\xbf".decode("latin-1")
+    path.write_text(mark + path.read_text(), encoding="utf-8")
+    frame, _ = _read(path)
+    assert np.allclose(frame["nee"].to_numpy(), values[:, 0])
+
+
+# ------------------------------------------------ a mark on some stamps
+@pytest.mark.parametrize("mark", ["*", " B", " (2)"])
+def test_marked_repeated_hour_is_named(tmp_path, mark):
+    """Civil time of Europe/Berlin (the time-zone database: clocks go back from 03:00
+    CEST to 02:00 CET on 31 October 2021 (m)); the repeated hour's second pass marked.
+    Refused before as a bare parse failure; now the mark is named, and without it the
+    file reads in record order (known truth: the records' UTC instants)."""
+    ends, values = _records(96 * 2)
+    ends = ends + (pd.Timestamp("2021-10-30 00:30") - ends[0])
+    civil = (ends.tz_localize("Etc/GMT-1").tz_convert("Europe/Berlin")
+             .strftime("%Y-%m-%d %H:%M"))
+    stamps = list(civil)
+    seen = set()
+    marked = []
+    for i, s in enumerate(stamps):
+        if s in seen:
+            marked.append(i)
+        seen.add(s)
+    assert len(marked) == 2
+    path = tmp_path / "mast.csv"
+    _write(path, [s + mark if i in marked else s for i, s in enumerate(stamps)],
+           _cells(values))
+    with pytest.raises(TimestampError) as caught:
+        _read(path, time_zone="Europe/Berlin")
+    message = str(caught.value)
+    assert "end in a mark the other stamps lack" in message and repr(mark.strip()) in message
+    _write(path, stamps, _cells(values))
+    frame, _ = _read(path, time_zone="Europe/Berlin")
+    starts = pd.DatetimeIndex(ends - pd.Timedelta(minutes=30), name="time")
+    pd.testing.assert_index_equal(frame.index, starts, exact=False)
