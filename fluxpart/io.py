@@ -1958,6 +1958,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     markup = markup_message(text, path, rows_before_header)
     if markup:
         raise InputFileError(markup)
+    _refuse_wide_header(path, text, delimiter, rows_before_header)
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
     options = {"dtype": str, "keep_default_na": False, "na_filter": False}
@@ -2056,6 +2057,44 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
     return raw, lines, [str(h).strip() for h in header], unnamed_surplus
+
+
+#: More fields than a header line of any table holds: a spreadsheet has at most 16,384
+#: columns (Excel's specification and limits since Excel 2007 (m)), eddy-covariance
+#: programs' full outputs a few hundred
+_MAX_HEADER_FIELDS = 16384
+
+
+def _refuse_wide_header(path: Path, text: str, delimiter: str, rows_before_header: int
+                        ) -> None:
+    """Raise where the header line holds more fields than any table has columns.
+
+    A file whose line breaks were lost (a copy or a conversion that dropped them, a
+    program writing records without one) is one line of every record's fields: read
+    as a header of that many names it took pandas minutes to build a frame of as many
+    columns and was then refused as "a header but no records" (layouts28: 4 min 45 s
+    for a year of half-hours, 157,689 fields). Delimiters inside quotes are counted
+    too, which only overcounts a header that is far too wide already.
+    """
+    start = 0
+    for _ in range(rows_before_header):
+        start = text.find("\n", start) + 1
+        if start == 0:
+            return
+    end = text.find("\n", start)
+    line = text[start:end if end >= 0 else len(text)]
+    if len(line) <= _MAX_HEADER_FIELDS:
+        return
+    fields = len(line.split()) if delimiter == _WHITESPACE else line.count(delimiter) + 1
+    if fields <= _MAX_HEADER_FIELDS:
+        return
+    rest = sum(1 for later in text[end:].splitlines() if later.strip()) if end >= 0 else 0
+    raise InputFileError(
+        f"input file {str(path)!r}: its header (line {rows_before_header + 1}) holds "
+        f"{fields:,} fields, more than any table has columns (a spreadsheet holds at most "
+        f"16,384), and {rest} line(s) follow it: records written on one line (line breaks "
+        "lost in a copy or a conversion?), or another delimiter than [input] delimiter; "
+        "write one record per line in a copy of the file")
 
 
 def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,

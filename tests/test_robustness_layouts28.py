@@ -367,3 +367,26 @@ def test_marked_repeated_hour_is_named(tmp_path, mark):
     frame, _ = _read(path, time_zone="Europe/Berlin")
     starts = pd.DatetimeIndex(ends - pd.Timedelta(minutes=30), name="time")
     pd.testing.assert_index_equal(frame.index, starts, exact=False)
+
+
+# ------------------------------------------------ records on one line
+@pytest.mark.parametrize("ending", ["", "\n"])
+def test_records_on_one_line_are_refused_at_once(tmp_path, ending):
+    """A file whose line breaks were lost is one line of every field: more than the
+    16,384 columns a spreadsheet holds (Excel's specifications and limits (m)). Read as a
+    header of that many names, `check` took minutes before "a header but no records";
+    now one line names the field count at once (known truth: 500 records of 6
+    fields, 3,006 fields, under the limit, stay a header with no records)."""
+    ends, values = _records(96 * 30)
+    lines = [",".join(["stamp"] + NAMES)]
+    lines += [",".join([s] + row) for s, row in zip(_stamps(ends), _cells(values),
+                                                     strict=True)]
+    path = tmp_path / "mast.csv"
+    path.write_text(",".join(lines) + ending)
+    with pytest.raises(InputFileError) as caught:
+        _read(path)
+    message = str(caught.value)
+    assert f"holds {6 * len(lines):,} fields" in message and "0 line(s) follow" in message
+    path.write_text(",".join(lines[:501]) + ending)
+    with pytest.raises(InputFileError, match="has a header but no records"):
+        _read(path)
