@@ -2073,22 +2073,20 @@ def _refuse_wide_header(path: Path, text: str, delimiter: str, rows_before_heade
     program writing records without one) is one line of every record's fields: read
     as a header of that many names it took pandas minutes to build a frame of as many
     columns and was then refused as "a header but no records" (layouts28: 4 min 45 s
-    for a year of half-hours, 157,689 fields). Delimiters inside quotes are counted
+    for a year of half-hours, 157,690 fields). Delimiters inside quotes are counted
     too, which only overcounts a header that is far too wide already.
     """
-    start = 0
+    # universal newlines: CR-only and CRLF files alike (a CR-only file is no one line)
+    lines = _io.StringIO(text, newline=None)
     for _ in range(rows_before_header):
-        start = text.find("\n", start) + 1
-        if start == 0:
-            return
-    end = text.find("\n", start)
-    line = text[start:end if end >= 0 else len(text)]
+        lines.readline()
+    line = lines.readline().rstrip("\n")
     if len(line) <= _MAX_HEADER_FIELDS:
         return
     fields = len(line.split()) if delimiter == _WHITESPACE else line.count(delimiter) + 1
     if fields <= _MAX_HEADER_FIELDS:
         return
-    rest = sum(1 for later in text[end:].splitlines() if later.strip()) if end >= 0 else 0
+    rest = sum(1 for later in lines if later.strip())
     raise InputFileError(
         f"input file {str(path)!r}: its header (line {rows_before_header + 1}) holds "
         f"{fields:,} fields, more than any table has columns (a spreadsheet holds at most "

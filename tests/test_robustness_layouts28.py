@@ -390,3 +390,18 @@ def test_records_on_one_line_are_refused_at_once(tmp_path, ending):
     path.write_text(",".join(lines[:501]) + ending)
     with pytest.raises(InputFileError, match="has a header but no records"):
         _read(path)
+
+
+@pytest.mark.parametrize("newline", ["\r", "\r\n"])
+def test_lines_ended_by_cr_are_no_one_line(tmp_path, newline):
+    """Kept behaviour: a file whose lines end in CR alone (classic Mac OS) or CRLF
+    (Windows) has as many lines as records (Unicode line breaks, common practice), not
+    one wide header (known truth: the records as written)."""
+    ends, values = _records(96 * 30)
+    lines = [",".join(["stamp"] + NAMES)]
+    lines += [",".join([s] + row) for s, row in zip(_stamps(ends), _cells(values),
+                                                     strict=True)]
+    path = tmp_path / "mast.csv"
+    path.write_bytes((newline.join(lines) + newline).encode())
+    frame, _ = _read(path)
+    assert np.allclose(frame["nee"].to_numpy(), values[:, 0])
