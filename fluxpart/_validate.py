@@ -227,18 +227,22 @@ def markup_message(text: str, path, header_at: int = 0) -> str:
 
     # the first lines only (universal newlines: CR-only and CRLF files alike)
     lines = list(itertools.islice(io.StringIO(text, newline=None), header_at, header_at + 20))
-    shown = next((line.strip() for line in lines if line.strip()), "")
+    nonblank = [line.strip() for line in lines if line.strip()]
+    shown = nonblank[0] if nonblank else ""
+    # a line of JSON or of tags above the lines of a table is a preamble (a JSON comment,
+    # a title in angle brackets): that is rows_before_header's matter, named elsewhere
+    following = nonblank[1] if len(nonblank) > 1 else ""
     kind, fix = "", ""
     lower = shown.lower()
-    if shown.startswith(("{", "[")):
+    if shown.startswith(("{", "[")) and (
+            not following or following.startswith(("{", "[", '"', "]", "}"))):
         try:
             value = json.loads(shown)
         except ValueError:
             value = None
         if isinstance(value, dict) or shown in ("{", "[", "[{") or shown.startswith(
                 ('{"', '[{"', '[["', "[{ ")):
-            following = [line.strip() for line in lines if line.strip()][1:2]
-            if isinstance(value, dict) and following and following[0].startswith("{"):
+            if isinstance(value, dict) and following.startswith("{"):
                 kind = "JSON Lines (one JSON object per line)"
             else:
                 kind = "JSON"
@@ -250,7 +254,8 @@ def markup_message(text: str, path, header_at: int = 0) -> str:
     elif "urn:schemas-microsoft-com:office:spreadsheet" in text[:4096] or \
             'progid="excel.sheet"' in text[:4096].lower():
         kind, fix = "an Excel 2003 XML workbook", _SHEET_FIX
-    elif lower.startswith("<?xml") or _TAGS_ONLY.fullmatch(shown):
+    elif lower.startswith("<?xml") or (_TAGS_ONLY.fullmatch(shown) and (
+            not following or following.startswith("<"))):
         kind, fix = "XML", _TABLE_FIX
     if not kind:
         return ""

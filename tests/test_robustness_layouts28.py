@@ -405,3 +405,20 @@ def test_lines_ended_by_cr_are_no_one_line(tmp_path, newline):
     path.write_bytes((newline.join(lines) + newline).encode())
     frame, _ = _read(path)
     assert np.allclose(frame["nee"].to_numpy(), values[:, 0])
+
+
+@pytest.mark.parametrize("above", ['{"station": "Q1", "logger": 2}', "<Station Q1>",
+                                   "<metadata/>"])
+def test_a_preamble_line_of_json_or_tags_above_a_table_is_no_markup(tmp_path, above):
+    """Kept behaviour: one line of JSON or tags above a table's header is a preamble
+    (rows_before_header's matter): the refusal names that setting, not JSON or XML, and
+    with it the records read as written (known truth)."""
+    ends, values = _records(96)
+    path = tmp_path / "mast.csv"
+    _write(path, _stamps(ends), _cells(values))
+    path.write_text(above + "\n" + path.read_text())
+    assert markup_message(path.read_text(), path) == ""
+    with pytest.raises(Exception, match="rows_before_header = 1"):
+        _read(path)
+    frame, _ = _read(path, rows_before_header=1)
+    assert np.allclose(frame["rg"].to_numpy(), values[:, 2])
