@@ -176,6 +176,115 @@ def refuse_binary(data: bytes, path) -> None:
                                  f"{fix} and point [input] path at the text file")
 
 
+#: The first line of a file that holds records in another notation than a delimited
+#: table: its kind and the fix. XML declarations and tags (W3C XML 1.0, section 2.8 (m)),
+#: HTML documents and tables (WHATWG HTML (m); web portals and loggers' web pages save
+#: a table as HTML, often named ``.xls``), the XML of Excel 2003 workbooks (Microsoft
+#: SpreadsheetML, namespace ``urn:schemas-microsoft-com:office:spreadsheet`` (m)),
+#: JSON values (RFC 8259) and JSON Lines, one JSON object per line (jsonlines.org (m)).
+_TABLE_FIX = ("write the records as a delimited text table (one header line of names, one "
+              "line per record) in a copy")
+_SHEET_FIX = "open it in a spreadsheet and save the sheet as CSV"
+_TAGS_ONLY = re.compile(r"(?:<[^<>]*>\s*)+")
+
+
+def markup_message(text: str, path, header_at: int = 0) -> str:
+    """Name a file whose records are XML, HTML or JSON rather than a delimited table, or "".
+
+    Parameters
+    ----------
+    text : str
+        The decoded file.
+    path : str or path-like
+        The file, named in the message.
+    header_at : int
+        Lines above the header line (``[input] rows_before_header``): the line judged
+        is the first non-blank one from there on.
+
+    Returns
+    -------
+    str
+        One message naming the notation and the fix, "" where the header line reads as
+        a table's.
+
+    Notes
+    -----
+    Read as a table, such a file was refused for a cause it does not have (layouts28):
+    JSON Lines as "a header line with other names" (each line's keys), a JSON array as
+    "a header but no records", XML as "set delimiter = whitespace", an HTML table by
+    its first tag as the only column. The judged line must be a JSON value or object
+    start, an XML declaration, a document type, or tags and nothing else: a header whose
+    names hold brackets or angle brackets between delimiters (``<Tair>,<Rg>``) is none.
+
+    References
+    ----------
+    RFC 8259, The JavaScript Object Notation (JSON) Data Interchange Format (m); W3C,
+    Extensible Markup Language (XML) 1.0, 5th ed. (m); WHATWG HTML Living Standard (m).
+    """
+    import io
+    import itertools
+    import json
+
+    # the first lines only (universal newlines: CR-only and CRLF files alike)
+    lines = list(itertools.islice(io.StringIO(text, newline=None), header_at, header_at + 20))
+    nonblank = [line.strip() for line in lines if line.strip()]
+    shown = nonblank[0] if nonblank else ""
+    # a line of JSON or of tags above the lines of a table is a preamble (a JSON comment,
+    # a title in angle brackets): that is rows_before_header's matter, named elsewhere
+    following = nonblank[1] if len(nonblank) > 1 else ""
+    kind, fix = "", ""
+    lower = shown.lower()
+    if shown.startswith(("{", "[")) and (
+            not following or following.startswith(("{", "[", '"', "]", "}"))):
+        try:
+            value = json.loads(shown)
+        except ValueError:
+            value = None
+        if isinstance(value, dict) or shown in ("{", "[", "[{") or shown.startswith(
+                ('{"', '[{"', '[["', "[{ ")):
+            if isinstance(value, dict) and following.startswith("{"):
+                kind = "JSON Lines (one JSON object per line)"
+            else:
+                kind = "JSON"
+            fix = _TABLE_FIX
+    elif lower.startswith(("<!doctype html", "<html", "<table")) or (
+            lower.startswith("<") and "<table" in text[:4096].lower()):
+        kind, fix = "an HTML page or table (as web portals save a sheet, often as .xls)", \
+            _SHEET_FIX
+    elif "urn:schemas-microsoft-com:office:spreadsheet" in text[:4096] or \
+            'progid="excel.sheet"' in text[:4096].lower():
+        kind, fix = "an Excel 2003 XML workbook", _SHEET_FIX
+    elif lower.startswith("<?xml") or (_TAGS_ONLY.fullmatch(shown) and (
+            not following or following.startswith("<"))):
+        kind, fix = "XML", _TABLE_FIX
+    if not kind:
+        return ""
+    return (f"input file {str(path)!r} holds {kind}, not a delimited text table "
+            f"(its line {shown[:40]!r}); {fix} and point [input] path at it")
+
+
+def owner_file_message(path, size: int) -> str:
+    """Name a spreadsheet program's owner file ("~$" and the name of an open file), or "".
+
+    Excel (and LibreOffice for Microsoft formats) writes a small file ``~$`` + the name
+    beside a file it has open, holding who opened it; it stays after a crash. A path
+    pattern (``*.csv``) catches it beside the month files, and it was refused as UTF-16
+    text (layouts28), a fix that cannot help.
+
+    References
+    ----------
+    Microsoft support, "Description of how Word creates temporary files" (the ``~$``
+    owner file, 162 bytes) (m).
+    """
+    name = Path(path).name
+    if not name.startswith("~$") or size > 4096:
+        return ""
+    return (f"[input] path: {str(path)!r} is a spreadsheet program's owner file (\"~$\" "
+            "and a file's name: who has that file open, written while it is open and left "
+            "by a crash), not records: close the file in the spreadsheet or delete the "
+            "leftover, or narrow [input] path so that it is not matched")
+
+
 def unicode_form_hint(path) -> str:
     """The fix for a missing path whose name exists in another Unicode form, or "".
 

@@ -49,7 +49,14 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from ._validate import other_system_path_hint, read_toml, refuse_binary, unicode_form_hint
+from ._validate import (
+    markup_message,
+    other_system_path_hint,
+    owner_file_message,
+    read_toml,
+    refuse_binary,
+    unicode_form_hint,
+)
 from .config import Config, setting_text, suggest_key
 from .errors import (
     ConfigError,
@@ -139,7 +146,16 @@ _FLOAT_SPELLINGS_OF_NAN = ("nan", "+nan", "-nan")
 #: documentation of printf's infinity and NaN output (m)): no value, like "nan" and "inf"
 _MSVC_NAN = r"[+-]?1\.#(?:ind|qnan|snan)0*"
 _MSVC_INFINITY = r"[+-]?1\.#inf0*"
+#: NaN as C's printf writes it with its implementation's characters in brackets,
+#: "[-]nan(n-char-sequence)" (ISO/IEC 9899:2011 7.21.6.1; strtod reads "NAN(...)" back,
+#: 7.22.1.3 (m)): "-nan(ind)" and "nan(snan)" of the Microsoft C runtime since Visual
+#: Studio 2015 (Microsoft printf documentation (m)); no value, like "nan"
+_C_NAN = r"[+-]?nan\([0-9a-z_]*\)"
 _WHITESPACE = "whitespace"
+#: What opens a comment line: "#" (shell, Python, R), "//" and "/*" (C, C++, Java), "%"
+#: (MATLAB, Octave), "!" (Fortran 90), ";" (INI files, assembler) (each language's
+#: reference (m)); no record of a delimited table starts with one of them
+_COMMENT_MARKS = ("#", "//", "/*", "%", "!", ";")
 _GLOB_CHARACTERS = set("*?[")
 #: A number written with digit grouping (thousands separators) for each decimal mark:
 #: "1.034,5" or "1.034" where the decimal mark is a comma, "1,034.5" or "1,034" where it
@@ -1825,6 +1841,9 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
         raise InputFileError(_cannot_read(path, error)) from None
     except MemoryError:
         raise InputFileError(_too_large(path)) from None
+    owner = owner_file_message(path, len(data))
+    if owner:
+        raise InputFileError(owner)
     data = _decompressed(data, path)
     refuse_binary(data, path)
     # a byte-order mark names the encoding, also over [input] encoding: a file saved with
@@ -1855,6 +1874,12 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
     # the byte-order mark, also where files saved with one were joined end to end (a
     # header line starting with U+FEFF then is not the header line it repeats)
     text = text.replace("\ufeff", "")
+    # the same mark of a UTF-8 file read once as Latin-1 or cp1252 and saved again as
+    # UTF-8 ("\u00ef\u00bb\u00bf", the mark's three bytes as three characters; no
+    # name or record starts with them): as the mark (layouts28: the time column was
+    # not found, "did you mean 'ï»¿stamp'?")
+    if "\u00ef\u00bb\u00bf" in text:
+        text = re.sub("(?m)^\u00ef\u00bb\u00bf", "", text)
     # the end-of-file mark of CP/M and MS-DOS text files (Ctrl-Z, 0x1A; DOS `copy` and
     # old logger programs write it after the last line (m)) is no content: dropped as the
     # byte-order mark is (layouts25: it was dropped as "a record cut short or a footer",
@@ -1930,6 +1955,10 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     the header (a delimiter closing the header line) are not counted: data lines
     without that delimiter are complete, and the empty column is left out.
     """
+    markup = markup_message(text, path, rows_before_header)
+    if markup:
+        raise InputFileError(markup)
+    _refuse_wide_header(path, text, delimiter, rows_before_header)
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
     options = {"dtype": str, "keep_default_na": False, "na_filter": False}
@@ -2028,6 +2057,42 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     # header cells padded with spaces ("a, b, c", fixed-width exports) name the same columns
     raw.columns = [str(c).strip() for c in raw.columns]
     return raw, lines, [str(h).strip() for h in header], unnamed_surplus
+
+
+#: More fields than a header line of any table holds: a spreadsheet has at most 16,384
+#: columns (Excel's specification and limits since Excel 2007 (m)), eddy-covariance
+#: programs' full outputs a few hundred
+_MAX_HEADER_FIELDS = 16384
+
+
+def _refuse_wide_header(path: Path, text: str, delimiter: str, rows_before_header: int
+                        ) -> None:
+    """Raise where the header line holds more fields than any table has columns.
+
+    A file whose line breaks were lost (a copy or a conversion that dropped them, a
+    program writing records without one) is one line of every record's fields: read
+    as a header of that many names it took pandas minutes to build a frame of as many
+    columns and was then refused as "a header but no records" (layouts28: 4 min 45 s
+    for a year of half-hours, 157,690 fields). Delimiters inside quotes are counted
+    too, which only overcounts a header that is far too wide already.
+    """
+    # universal newlines: CR-only and CRLF files alike (a CR-only file is no one line)
+    lines = _io.StringIO(text, newline=None)
+    for _ in range(rows_before_header):
+        lines.readline()
+    line = lines.readline().rstrip("\n")
+    if len(line) <= _MAX_HEADER_FIELDS:
+        return
+    fields = len(line.split()) if delimiter == _WHITESPACE else line.count(delimiter) + 1
+    if fields <= _MAX_HEADER_FIELDS:
+        return
+    rest = sum(1 for later in lines if later.strip())
+    raise InputFileError(
+        f"input file {str(path)!r}: its header (line {rows_before_header + 1}) holds "
+        f"{fields:,} fields, more than any table has columns (a spreadsheet holds at most "
+        f"16,384), and {rest} line(s) follow it: records written on one line (line breaks "
+        "lost in a copy or a conversion?), or another delimiter than [input] delimiter; "
+        "write one record per line in a copy of the file")
 
 
 def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
@@ -2337,7 +2402,7 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
                 "it would move one column left), and a record cut short looks the same; "
                 "write each missing value as a code (e.g. -9999, listed in [input] missing) "
                 "in a copy of the file, or save it with a delimiter (\",\", \";\" or a tab)")
-        if text_lines[lines[row] - 1].lstrip().startswith(("#", "//", ";")) and not (
+        if text_lines[lines[row] - 1].lstrip().startswith(_COMMENT_MARKS) and not (
                 delimiter == ";" and text_lines[lines[row] - 1].lstrip().startswith(";")):
             # a note written among the records ("# sensor cleaned"): no record cut short
             # (layouts25: the line named a value cut mid-number)
@@ -3662,7 +3727,8 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
         # only the cells that are no number are tried as the old Windows spellings
         rows = np.flatnonzero(bad)
         odd = folded.iloc[rows]
-        nan_like = odd.str.fullmatch(_MSVC_NAN).to_numpy(dtype=bool, na_value=False)
+        nan_like = odd.str.fullmatch(_MSVC_NAN).to_numpy(dtype=bool, na_value=False) \
+            | odd.str.fullmatch(_C_NAN).to_numpy(dtype=bool, na_value=False)
         inf_like = odd.str.fullmatch(_MSVC_INFINITY).to_numpy(dtype=bool, na_value=False)
         if nan_like.any() or inf_like.any():
             is_code, numbers = is_code.copy(), numbers.copy()

@@ -124,6 +124,7 @@ from .gapfill import QUALITY_A_WINDOW_DAYS
 from .screening import site_flag
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
+from .vpd_exchange import vpd_exchanged_in_months
 
 __all__ = ["Finding", "MISSING_USTAR_SHARE", "RG_ABOVE_POTENTIAL_SHARE", "defer_to_clock",
            "preflight", "shade_at_clock_shift"]
@@ -512,7 +513,17 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                       screened["vpd"].to_numpy(dtype=float), names)
         if text:
             findings.append(Finding("input (vpd vapour pressure)", text, False))
-        if "rg" in screened.columns:
+        # the VPD column exchanged with another for some months (round layouts28): named
+        # as such, not by its side effect on the temperature VPD and RH imply
+        exchanged = vpd_exchanged_in_months(
+            screened["tair"].to_numpy(dtype=float), screened["rh"].to_numpy(dtype=float),
+            screened["vpd"].to_numpy(dtype=float),
+            {name: screened[name].to_numpy(dtype=float)
+             for name in ("ustar", "tsoil", "rg", "nee") if name in screened.columns},
+            screened.index, names)
+        if exchanged:
+            findings.append(Finding("input (vpd exchanged)", exchanged, False))
+        if "rg" in screened.columns and not exchanged:
             # a thermometer heated by the sun (round mistakes26)
             text = sun_heated_tair(screened["tair"].to_numpy(dtype=float),
                                    screened["rh"].to_numpy(dtype=float),

@@ -503,6 +503,18 @@ _NUMERIC_CLOCKS = (
     ("Julian dates (days since noon UTC of 1 January 4713 BC)", 86400.0, "1970-01-01",
      (2.42e6, 2.49e6), 2440587.5),
 )
+#: Clocks that count from 1904-01-01 in the same units as one of _NUMERIC_CLOCKS, whose
+#: values fall in its range four years (days) or 66 years (seconds) off: LabVIEW's time
+#: stamp and the classic Mac OS clock count seconds since 1904-01-01 (LabVIEW
+#: documentation of its time stamp; Apple, Inside Macintosh (m)), and Excel's 1904 date
+#: system (Excel for Mac before 2011) counts days since 1904-01-01 (Microsoft, "Date
+#: systems in Excel" (m)). Named beside the first reading: the numbers cannot tell which.
+_NUMERIC_CLOCKS_1904 = {
+    "seconds since 1970-01-01 UTC (Unix time)":
+        ("seconds since 1904-01-01 (LabVIEW, classic Mac OS)", 1.0),
+    "spreadsheet day numbers (days since 1899-12-30, as Excel and LibreOffice count)":
+        ("days since 1904-01-01 (Excel's 1904 date system)", 86400.0),
+}
 
 
 def _summary_lines(text: pd.Series, failed: np.ndarray) -> str:
@@ -550,8 +562,17 @@ def _numeric_clock(text: pd.Series) -> str:
         first = pd.Timestamp(epoch) + pd.Timedelta(seconds=(float(numbers[0]) - shift)
                                                    * seconds)
         zone = " UTC" if "UTC" in name else ""
+        other = ""
+        if name in _NUMERIC_CLOCKS_1904:
+            # layouts28: LabVIEW seconds were named as Unix time of 2087, one reading only
+            other_name, unit = _NUMERIC_CLOCKS_1904[name]
+            then = pd.Timestamp("1904-01-01") + pd.Timedelta(seconds=float(numbers[0]) * unit)
+            if 1971 <= then.year <= 2100:      # the plausible stamps of _NUMERIC_CLOCKS
+                other = (f", or {other_name} (in which it is "
+                         f"{then.round('min'):%Y-%m-%d %H:%M})")
         return (f"the stamps are {name}, not dates ({text.iloc[0].strip()!r} is "
-                f"{first.round('min'):%Y-%m-%d %H:%M}{zone}), which fluxpart does not read: "
+                f"{first.round('min'):%Y-%m-%d %H:%M}{zone}){other}, which fluxpart does not "
+                "read: "
                 "write the column as dates and times in a copy of the file (e.g. 2021-06-01 "
                 "13:30; in a spreadsheet, format the column as yyyy-mm-dd hh:mm before saving "
                 "as CSV) and set [input] time_format to match"
@@ -772,6 +793,12 @@ def _written_where_it_changes(text: pd.Series, failed: np.ndarray, time_columns)
             "records have no date: write it on every line in a copy of the file")
 
 
+#: A UTC offset after a stamp, alone or after UTC or GMT, in brackets or not ("
+#: (UTC+01:00)", " GMT+0100", " [+01:00]"; ISO 8601-1:2019 writes offsets as
+#: +hh:mm or +hhmm (m))
+_OFFSET_TAIL = re.compile(r"\s*[(\[]?\s*(?:UTC|GMT)?\s*(?P<offset>[+-]\d{2}:?\d{2})\s*[)\]]?\s*$")
+
+
 def _text_around_stamps(text: pd.Series, failed: np.ndarray, time_format: str) -> str:
     """A hint where every stamp carries the same text before or after it that the format
     lacks ("'" of a spreadsheet's text cell, " Uhr", " h") or writes the ISO 8601 "T"
@@ -804,14 +831,58 @@ def _text_around_stamps(text: pd.Series, failed: np.ndarray, time_format: str) -
     if " " in time_format and "T" in stamp:
         candidates.append(("the stamps write 'T' (ISO 8601) between date and time",
                            time_format.replace(" ", "T", 1)))
+    offset = _OFFSET_TAIL.search(stamp)
+    if offset and "%z" not in time_format:
+        # layouts28: a UTC offset after each stamp in words or brackets (" (UTC+01:00)")
+        # was refused with no cause; %z reads it, each stamp by its own offset
+        tail = offset.group(0)
+        digits = offset.group("offset")
+        candidates.append((f"the stamps end in {tail!r}, a UTC offset",
+                           time_format + tail.replace("%", "%%").replace(digits, "%z")))
     for what, candidate in candidates:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            read = pd.to_datetime(cells, format=candidate, errors="coerce")
+            read = pd.to_datetime(cells, format=candidate, errors="coerce",
+                                  utc="%z" in candidate)
         if read.notna().all():
             return (f"{what}, which time_format lacks: time_format = "
                     f"{setting_text(candidate)} reads every stamp")
     return ""
+
+
+def _marked_stamps(text: pd.Series, failed: np.ndarray, time_format: str) -> str:
+    """A hint where the stamps that fail are the others' form with a mark after them
+    ("02:30*", "02:30 B", "02:30 (2)") that the format reads without it; else ''.
+
+    A logger or an export marks some records so: the second pass of the hour that
+    clocks repeat when daylight saving ends, or records edited by hand. The mark is
+    named, not dropped: what it means the file does not say (layouts28: refused as a
+    bare parse failure).
+
+    References
+    ----------
+    Python documentation, ``datetime.strptime``: the whole string must match the
+    format (m).
+    """
+    if failed.all() or not failed.any() or time_format.upper() == "ISO8601":
+        return ""
+    cells = text[failed].str.strip()
+    marks = cells.str.extract(r"(\s*(?:[*#!?+]+|\(\d+\)|\[\d+\]|[A-Za-z]))$", expand=False)
+    if marks.isna().any():
+        return ""
+    bare = pd.Series([cell[:len(cell) - len(mark)] for cell, mark in
+                      zip(cells, marks, strict=True)], index=cells.index)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        read = pd.to_datetime(bare, format=time_format, errors="coerce")
+    if read.isna().any():
+        return ""
+    shown = ", ".join(repr(mark.strip()) for mark in dict.fromkeys(marks))
+    return (f"{int(failed.sum())} stamp(s) end in a mark the other stamps lack ({shown}; "
+            f"{cells.iloc[0]!r}): a mark of the hour that clocks repeat when daylight "
+            "saving ends, or of records edited by hand? What it means the file does not "
+            "say: remove the mark in a copy of the file (with [input] time_zone, the "
+            "repeated hour is read in record order, its first pass summer time)")
 
 
 #: A format ending in hours and minutes written as a decimal number ("%H.%M", "%H,%M")
@@ -1202,6 +1273,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = "; " + _other_format(text.iloc[first], time_format)
         elif _text_around_stamps(text, failed, time_format):
             hint = "; " + _text_around_stamps(text, failed, time_format)
+        elif _marked_stamps(text, failed, time_format):
+            hint = "; " + _marked_stamps(text, failed, time_format)
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
@@ -1222,6 +1295,10 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                              f"{exchanged}")
     index = pd.DatetimeIndex(parsed)
     index, rounded = _round_to_minute(index)
+    buddhist = _buddhist_era(index)
+    if buddhist:
+        raise TimestampError(f"{_time_setting(time_columns)}: the stamps of {source!r} "
+                             f"{buddhist}")
     offset_converted = 0
     if index.tz is not None:
         if utc_offset is None:
@@ -1239,6 +1316,41 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                         offset_converted=offset_converted, daylight_saving=daylight,
                         utc_zone=from_utc,
                         rounded_to_minute=rounded, date_only=int(date_only.sum()))
+
+
+#: Years of the Buddhist Era as the Thai solar calendar counts them: the Gregorian year
+#: + 543 (the calendar of Thailand since 1941, which Thai-locale spreadsheets and
+#: Windows write in dates (m)). Stamps whose years all lie in the Buddhist Era's years
+#: of 1900-2200 CE are over 400 years ahead read as written, which no measured or
+#: simulated site-year is (our bound).
+_BUDDHIST_ERA_OFFSET = 543
+_BUDDHIST_ERA_YEARS = (1900 + 543, 2200 + 543)
+
+
+def _buddhist_era(index: pd.DatetimeIndex) -> str:
+    """Name stamps dated in the Buddhist Era's years (2564 for 2021), or "".
+
+    Read as written they were the year 2564 (a leap year: 29 February a day-long gap)
+    without a word (layouts28); the file cannot say the calendar, so both readings are
+    named and the stamps are refused.
+
+    References
+    ----------
+    Thai solar calendar: Buddhist Era year = Gregorian year + 543 (m).
+    """
+    if index.empty or index.hasnans:
+        return ""
+    low, high = int(index.year.min()), int(index.year.max())
+    if not (_BUDDHIST_ERA_YEARS[0] <= low and high <= _BUDDHIST_ERA_YEARS[1]):
+        return ""
+    first = low - _BUDDHIST_ERA_OFFSET
+    last = high - _BUDDHIST_ERA_OFFSET
+    years = f"{low}" if low == high else f"{low} to {high}"
+    gregorian = f"{first}" if first == last else f"{first} to {last}"
+    return (f"are dated {years}, over 400 years ahead; in the Buddhist Era of the Thai "
+            f"solar calendar (Gregorian year + 543, as a Thai-locale spreadsheet writes "
+            f"dates) they are {gregorian}: write Gregorian years in a copy of the file "
+            "(format the column with the Gregorian calendar before saving)")
 
 
 def check_time_zone(time_zone, utc_offset: float, when=None) -> str:
