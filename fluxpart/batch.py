@@ -593,8 +593,47 @@ def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome
         annual, site, notes = _annual_from(directory)
         return SiteOutcome(status="written", note=reason, site=site, annual=annual,
                            warnings=notes, **common)
+    except OSError as error:
+        return _failure(common, vanished_config_error(config, error) or error)
     except Exception as error:  # isolate every site's failure
         return _failure(common, error)
+
+
+def vanished_config_error(config: Path, error: OSError) -> InputFileError | None:
+    """The one-line error of a site config that could not be read when its task ran.
+
+    The batch lists its sites' configs when it starts; a task reads its config when a
+    worker takes it up, seconds to hours later. A config removed, renamed or made
+    unreadable in between (a tidy-up of a shared folder, a sync tool replacing the file,
+    a site retired while the batch ran) failed the site with Python's
+    ``FileNotFoundError`` and a 15-line traceback, as an internal error.
+
+    Parameters
+    ----------
+    config : pathlib.Path
+        The site config of the task.
+    error : OSError
+        The error raised while the site was processed.
+
+    Returns
+    -------
+    InputFileError or None
+        Naming the config, what the system said and the fix; None where `error`
+        concerns another file (an input file, the result folder).
+
+    References
+    ----------
+    ``open(2)``: ENOENT, EACCES and EISDIR name the path that could not be opened,
+    which Python keeps as ``OSError.filename`` (m).
+    """
+    name = error.filename
+    if name is None or os.fsdecode(name) != str(config):
+        return None
+    return InputFileError(
+        f"the site config {str(config)!r} could not be read when its site's turn came "
+        f"({error.strerror or type(error).__name__}): it was removed, moved or made "
+        "unreadable after the batch listed its sites; restore it and run the batch again "
+        "(sites up to date are skipped)")
 
 
 def _checked_site(key: str, config, directory, *, force: bool = False,

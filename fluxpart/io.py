@@ -40,6 +40,7 @@ import lzma
 import math
 import os
 import re
+import stat
 import unicodedata
 from dataclasses import dataclass, field, fields
 from pathlib import Path
@@ -1109,6 +1110,89 @@ def _check_keys(table: dict, valid, where: str, spell: str) -> None:
             raise ConfigError(f"{where} {spell.format(key=key)} is unknown{hint}")
 
 
+def _odd_entry(path: Path) -> str:
+    """What a glob match that is neither a file nor a folder is, or ``""``.
+
+    A glob lists a directory's entries, so it also matches a symbolic link whose target
+    is missing (a month's file on a network share that is not mounted, an archive moved
+    away), a loop of links, a named pipe, a device or a socket. Taking only the regular
+    files dropped such an entry without a word, and the budget lost its records.
+
+    Parameters
+    ----------
+    path : pathlib.Path
+        One match of the pattern.
+
+    Returns
+    -------
+    str
+        ``"a symbolic link to '...', which does not exist"``, ``"a loop of symbolic
+        links"``, ``"a named pipe"``, ``"a device"``, ``"a socket"``; ``""`` for a file, a
+        folder or an entry that has gone meanwhile (reading it then names it).
+
+    References
+    ----------
+    POSIX.1-2017, ``stat(2)`` and ``<sys/stat.h>`` file types; ``path_resolution(7)``:
+    ELOOP for too many symbolic links, ENOENT for a dangling one (m).
+    """
+    try:
+        mode = path.stat().st_mode
+    except OSError as error:
+        if not path.is_symlink():
+            return ""
+        if error.errno == errno.ELOOP:
+            return "a loop of symbolic links"
+        try:
+            target = os.readlink(path)
+        except OSError:
+            target = "?"
+        return f"a symbolic link to {target!r}, which does not exist"
+    if stat.S_ISFIFO(mode):
+        return "a named pipe"
+    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
+        return "a device"
+    if stat.S_ISSOCK(mode):
+        return "a socket"
+    return ""
+
+
+def _glob_files(pattern: str, item: str) -> list:
+    """The files the glob `pattern` (of ``[input] path = item``) matches, sorted, each once.
+
+    A match that is a dangling or looping link or a special file is refused
+    (:func:`_odd_entry`) rather than dropped. One file reached under several paths (a
+    link to a folder such as ``latest -> 2021/06`` inside a ``**`` pattern, or a link
+    back to a parent folder, which ``glob`` follows until the kernel's limit of 40 links
+    and so listed one file 41 times) is kept once, under its shortest path (the first
+    such in sorted order): the same records read again were dropped as duplicates, but
+    the manifest listed the file under every path. The files are returned in the sorted
+    order of those paths, as before for a glob without links.
+
+    References
+    ----------
+    ``path_resolution(7)``: a path resolution follows at most 40 symbolic links (m);
+    ``stat(2)``: one file is one (st_dev, st_ino) pair whatever path reaches it (m).
+    """
+    found: dict = {}
+    for path in sorted(Path(text) for text in glob.glob(pattern, recursive=True)):
+        text = str(path)
+        odd = _odd_entry(path)
+        if odd:
+            raise ConfigError(f"[input] path = {setting_text(item)} matches {text!r}, {odd}: "
+                              "its records would be left out without a word; restore or mount "
+                              "what it stands for, or remove it, or narrow the pattern")
+        if not path.is_file():
+            continue
+        try:
+            facts = path.stat()
+            identity = (facts.st_dev, facts.st_ino)
+        except OSError:
+            identity = text
+        if identity not in found or len(path.parts) < len(found[identity].parts):
+            found[identity] = path
+    return sorted(found.values())
+
+
 def _resolve_paths(value, folder: Path) -> tuple:
     """``[input] path`` (a file, a list or a glob) -> existing files, relative to `folder`."""
     items = value if isinstance(value, list) else [value]
@@ -1131,8 +1215,7 @@ def _resolve_paths(value, folder: Path) -> tuple:
             pattern = item if Path(item).is_absolute() else str(
                 Path(glob.escape(str(folder))) / item)
             # "**" spans any depth of folders (logger/2021/06/...), as in [batch] sites
-            matches = sorted(Path(p) for p in glob.glob(pattern, recursive=True)
-                             if Path(p).is_file())
+            matches = _glob_files(pattern, item)
             literal = Path(item) if Path(item).is_absolute() else folder / item
             if literal.is_file():
                 # a file whose name holds a glob character ("tower[1].csv"): that file
@@ -1143,8 +1226,7 @@ def _resolve_paths(value, folder: Path) -> tuple:
                 escaped = item.replace("[", "[[]")
                 escaped = escaped if Path(item).is_absolute() else str(
                     Path(glob.escape(str(folder))) / escaped)
-                matches = sorted(Path(p) for p in glob.glob(escaped, recursive=True)
-                                 if Path(p).is_file())
+                matches = _glob_files(escaped, item)
             if not matches:
                 # a glob's backslash is part of a name outside Windows (as for one file)
                 slashes = other_system_path_hint(item)

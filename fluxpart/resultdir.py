@@ -361,9 +361,19 @@ def _swap_in(staging: Path, directory: Path) -> None:
         _fsync_dir(directory.parent)
         shutil.rmtree(staging, ignore_errors=True)      # now holds the old result
         return
+    # a file system without RENAME_EXCHANGE (NFS, SMB, sshfs and other FUSE file systems
+    # (m)): two renames. An interrupt (Ctrl-C, SIGTERM, SIGHUP: raised between two
+    # statements by the handlers) or a failed second rename between them left no folder
+    # at `directory`, the earlier result hidden in the retired folder until the next
+    # writer's clean-up: it is put back at once
     retired = _sibling(directory, _RETIRED, secrets.token_hex(4))
-    directory.rename(retired)
-    staging.rename(directory)
+    try:
+        directory.rename(retired)
+        staging.rename(directory)
+    except BaseException:
+        if not directory.exists() and retired.exists():
+            retired.rename(directory)
+        raise
     _fsync_dir(directory.parent)
     shutil.rmtree(retired, ignore_errors=True)
 
