@@ -62,7 +62,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from ._validate import other_system_path_hint, read_toml, unicode_form_hint
+from ._validate import odd_entry, other_system_path_hint, read_toml, unicode_form_hint
 from .config import Config, suggest_key
 from .errors import ConfigError, FluxpartError, FluxpartWarning, InputFileError, OutputError
 from .fingerprint import code_fingerprint
@@ -397,6 +397,7 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
         # 2, 0 or 1 and refused an existing file as matching nothing. A path that names an
         # existing file is that file (POSIX glob(7): brackets are pattern characters (m))
         if glob.has_magic(pattern) and not full.is_file():
+            _refuse_odd_matches(where, full)
             # the network file is a .toml file too: a glob beside it (*.toml) is not
             # meant to list it as a site
             matches = sorted(Path(p) for p in glob.glob(str(full), recursive=True)
@@ -419,6 +420,28 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
                 seen.add(given)
                 configs.append(given)
     return configs
+
+
+def _refuse_odd_matches(where: str, full: Path) -> None:
+    """Refuse a site-config glob matching a ``.toml`` entry that is no readable file.
+
+    A config linked from a share that is not mounted (a dangling link), a loop of links
+    or a named pipe was dropped by the glob's file test without a word, and the network
+    tables summed the other towers as if the network had one fewer (measured: "4
+    site(s)", the fifth, a dangling link, unnamed). :func:`fluxpart._validate.odd_entry` says
+    what the entry is.
+
+    References
+    ----------
+    Python ``glob`` documentation: broken symlinks are included in the results (m);
+    ``path_resolution(7)``: ELOOP, ENOENT (m).
+    """
+    for text in sorted(glob.glob(str(full), recursive=True)):
+        odd = odd_entry(Path(text)) if text.endswith(".toml") else ""
+        if odd:
+            raise ConfigError(f"{where} matches {text!r}, {odd}: that site would be left out "
+                              "of the network without a word; restore or mount what it "
+                              "stands for, or remove it, or narrow the pattern")
 
 
 def _as_given(path) -> Path:

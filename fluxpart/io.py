@@ -40,7 +40,6 @@ import lzma
 import math
 import os
 import re
-import stat
 import unicodedata
 from dataclasses import dataclass, field, fields
 from pathlib import Path
@@ -50,7 +49,13 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from ._validate import other_system_path_hint, read_toml, refuse_binary, unicode_form_hint
+from ._validate import (
+    odd_entry,
+    other_system_path_hint,
+    read_toml,
+    refuse_binary,
+    unicode_form_hint,
+)
 from .config import Config, setting_text, suggest_key
 from .errors import (
     ConfigError,
@@ -1110,57 +1115,11 @@ def _check_keys(table: dict, valid, where: str, spell: str) -> None:
             raise ConfigError(f"{where} {spell.format(key=key)} is unknown{hint}")
 
 
-def _odd_entry(path: Path) -> str:
-    """What a glob match that is neither a file nor a folder is, or ``""``.
-
-    A glob lists a directory's entries, so it also matches a symbolic link whose target
-    is missing (a month's file on a network share that is not mounted, an archive moved
-    away), a loop of links, a named pipe, a device or a socket. Taking only the regular
-    files dropped such an entry without a word, and the budget lost its records.
-
-    Parameters
-    ----------
-    path : pathlib.Path
-        One match of the pattern.
-
-    Returns
-    -------
-    str
-        ``"a symbolic link to '...', which does not exist"``, ``"a loop of symbolic
-        links"``, ``"a named pipe"``, ``"a device"``, ``"a socket"``; ``""`` for a file, a
-        folder or an entry that has gone meanwhile (reading it then names it).
-
-    References
-    ----------
-    POSIX.1-2017, ``stat(2)`` and ``<sys/stat.h>`` file types; ``path_resolution(7)``:
-    ELOOP for too many symbolic links, ENOENT for a dangling one (m).
-    """
-    try:
-        mode = path.stat().st_mode
-    except OSError as error:
-        if not path.is_symlink():
-            return ""
-        if error.errno == errno.ELOOP:
-            return "a loop of symbolic links"
-        try:
-            target = os.readlink(path)
-        except OSError:
-            target = "?"
-        return f"a symbolic link to {target!r}, which does not exist"
-    if stat.S_ISFIFO(mode):
-        return "a named pipe"
-    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
-        return "a device"
-    if stat.S_ISSOCK(mode):
-        return "a socket"
-    return ""
-
-
 def _glob_files(pattern: str, item: str) -> list:
     """The files the glob `pattern` (of ``[input] path = item``) matches, sorted, each once.
 
     A match that is a dangling or looping link or a special file is refused
-    (:func:`_odd_entry`) rather than dropped. One file reached under several paths (a
+    (:func:`fluxpart._validate.odd_entry`) rather than dropped. One file reached under several paths (a
     link to a folder such as ``latest -> 2021/06`` inside a ``**`` pattern, or a link
     back to a parent folder, which ``glob`` follows until the kernel's limit of 40 links
     and so listed one file 41 times) is kept once, under its shortest path (the first
@@ -1176,7 +1135,7 @@ def _glob_files(pattern: str, item: str) -> list:
     found: dict = {}
     for path in sorted(Path(text) for text in glob.glob(pattern, recursive=True)):
         text = str(path)
-        odd = _odd_entry(path)
+        odd = odd_entry(path)
         if odd:
             raise ConfigError(f"[input] path = {setting_text(item)} matches {text!r}, {odd}: "
                               "its records would be left out without a word; restore or mount "

@@ -63,6 +63,7 @@ from .manifest import (
     manifest_bytes,
     manifest_text,
     name_in_other_case,
+    newer_format_reason,
     read_manifest,
     seal_intact,
     shown_name,
@@ -925,9 +926,9 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
         problems.append(FolderProblem(MANIFEST_FILE, "seal", "was edited after it was written "
                                       "(its seal does not match its content)"))
     if manifest.get("format") != MANIFEST_FORMAT:
-        problems.append(FolderProblem(MANIFEST_FILE, "format",
-                                      f"has format {manifest.get('format')!r}; this fluxpart reads "
-                                      f"{MANIFEST_FORMAT!r} (rerun to rewrite the folder)"))
+        problems.append(FolderProblem(MANIFEST_FILE, "format", newer_format_reason(manifest)
+                                      or f"has format {manifest.get('format')!r}; this fluxpart "
+                                      f"reads {MANIFEST_FORMAT!r} (rerun to rewrite the folder)"))
     allowed_files, allowed_dirs = {MANIFEST_FILE}, set()
     unhashed = manifest.get("unhashed") if isinstance(manifest.get("unhashed"), dict) else {}
     if RUN_LOG in unhashed:

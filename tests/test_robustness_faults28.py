@@ -157,3 +157,60 @@ def test_a_missing_input_file_is_still_named_as_the_input(tmp_path):
     outcome = run_site("echo", config, tmp_path / "res" / "echo", force=True)
     assert outcome.status == "failed" and outcome.kind == "input"
     assert "input file" in outcome.message and "does not exist" in outcome.message
+
+
+def test_a_site_config_glob_matching_a_dangling_link_is_named(tmp_path, capsys):
+    """``[batch] sites = ["*/*.toml"]`` where one tower's config is a link into a share
+    that is not mounted: the glob returns the dangling link (Python glob docs (m)) and the
+    file test dropped it, so the batch said "1 site(s)" and the network tables summed one
+    tower fewer without a word. Now one line naming the entry, exit 2, nothing made (known
+    truth: no ``res`` folder)."""
+    make_bundle(tmp_path / "alpha", name="alpha.toml")
+    (tmp_path / "eps").mkdir()
+    (tmp_path / "eps" / "eps.toml").symlink_to("/nonexistent-share/quillmoor/eps.toml")
+    network = tmp_path / "net.toml"
+    network.write_text('[batch]\nsites = ["*/*.toml"]\nout = "res"\n')
+    assert main(["batch", str(network), "--workers", "1"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: [batch] sites[0]")
+    assert "eps.toml" in err[0] and "which does not exist" in err[0]
+    assert not (tmp_path / "res").exists()
+
+
+# --------------------------------------------------------------------------- verify
+
+
+def test_a_result_of_a_newer_releases_format_is_not_judged(tmp_path, capsys):
+    """An auditor with an older install verifies a result a later release wrote in a
+    newer manifest format (here resealed as fluxpart 0.31.0, ``fluxpart-result/3``, as
+    such a release would write it). verify said "NOT reproduced" (exit 1) and
+    report/load "does not match its manifest ... (rerun to rewrite the folder)": a
+    verdict from code that cannot read the format, and advice to replace the newer
+    result with an older release's. A reader refuses a format version newer than its own
+    (Semantic Versioning 2.0.0 items 7-8 (m); common practice). Now verify names the
+    release and both formats, "not judged", exit 2; the folder is untouched."""
+    import json
+
+    from fluxpart.manifest import MANIFEST_FORMAT, manifest_bytes, manifest_seal
+
+    config = make_bundle(tmp_path / "fen", name="fen.toml")
+    out = tmp_path / "out"
+    assert main(["run", str(config), "--out", str(out), "--quiet"]) == 0
+    manifest = json.loads((out / "manifest.json").read_text())
+    stem, _, number = MANIFEST_FORMAT.rpartition("/")
+    newer = f"{stem}/{int(number) + 1}"
+    manifest["format"], manifest["code"]["version"] = newer, "0.31.0"
+    manifest["seal"] = manifest_seal(manifest)
+    (out / "manifest.json").write_bytes(manifest_bytes(manifest))
+    before = sorted((p.name, p.read_bytes()) for p in out.iterdir())
+    capsys.readouterr()
+    assert main(["verify", str(out)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: verify:")
+    assert "fluxpart 0.31.0" in err[0] and repr(newer) in err[0] and "not judged" in err[0]
+    assert "rerun to rewrite" not in err[0]
+    assert sorted((p.name, p.read_bytes()) for p in out.iterdir()) == before
+    with pytest.raises(Exception, match="newer than the"):
+        from fluxpart import load
+
+        load(out)
