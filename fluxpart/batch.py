@@ -1285,6 +1285,7 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
                 cluster.close()
         finally:
             client_log.setLevel(level)
+    outcomes = [settled_outcome(outcome) for outcome in outcomes]
     try:
         table, failures = _write_network(outcomes, out)
     except OSError as error:          # a full disk after the sites were written
@@ -1299,6 +1300,48 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
                                       + same_name_sites(outcomes, same_records)
                                       + different_settings_sites(outcomes)
                                       + unlisted_site_folders(out, [k for k, _ in network.sites])))
+
+
+def settled_outcome(outcome: SiteOutcome) -> SiteOutcome:
+    """A site whose outcome was lost with the scheduler, as its folder now shows it.
+
+    When the client loses its Dask scheduler (stopped, restarted, its node rebooted),
+    every site not yet reported failed with :class:`SchedulerLostError`, also those a
+    worker had finished, and the network tables were rewritten without them: a
+    restarted scheduler left an empty network table that ``read_network`` returned
+    without a word (measured: 4 site folders intact and current, the network table 0
+    rows). A site whose folder holds the current result of its config
+    (:func:`is_up_to_date`: same config, input, settings, libraries and code, every
+    table as its manifest records) is now counted as up to date and enters the network
+    tables; any other stays failed.
+
+    Parameters
+    ----------
+    outcome : SiteOutcome
+        One site's outcome as the tasks returned it.
+
+    Returns
+    -------
+    SiteOutcome
+        `outcome` itself, or a ``"skipped"`` outcome read from the site's folder.
+
+    References
+    ----------
+    Dask.distributed documentation, "Futures": a client that loses its scheduler
+    cancels every future it holds, whatever the workers did (m).
+    """
+    if outcome.status != "failed" or outcome.error != SchedulerLostError.__name__:
+        return outcome
+    try:
+        if not is_up_to_date(outcome.config, outcome.directory):
+            return outcome
+        annual, site, notes = _annual_from(Path(outcome.directory))
+    except (FluxpartError, OSError):
+        return outcome
+    return SiteOutcome(status="skipped", key=outcome.key, config=outcome.config,
+                       directory=outcome.directory, site=site, annual=annual,
+                       warnings=notes, note="up to date (its outcome was lost with the "
+                       "scheduler; its folder holds the current result)")
 
 
 def _input_hashes(directory: Path) -> tuple:
