@@ -259,3 +259,82 @@ def test_sites_whose_outcome_was_lost_with_the_scheduler_enter_the_network_table
     assert sorted(set(table["site"].astype(str))) == ["alpha"]
     own = batch._annual_from(tmp_path / "res" / "alpha")[0]
     assert table["nee"].to_numpy().tolist() == own["nee"].to_numpy().tolist()
+
+
+# --------------------------------------------------------------------------- other users
+
+
+def _unsearchable(monkeypatch, locked: Path):
+    """Python 3.11's ``Path.exists``, ``is_file`` and ``iterdir`` raise PermissionError
+    (EACCES) for a path inside a folder this user may not search or list, instead of
+    answering False (pathlib docs: only "file not found"-like errors are ignored (m);
+    POSIX ``stat``/``opendir`` EACCES (m)). Root ignores modes, so the tests here stand
+    for a second user by raising what the kernel raises for one."""
+    import errno
+
+    def denied(path):
+        return PermissionError(errno.EACCES, os.strerror(errno.EACCES), str(path))
+
+    real_stat, real_iterdir = Path.stat, Path.iterdir
+
+    def stat(self, *, follow_symlinks=True):
+        if str(self).startswith(str(locked) + os.sep):
+            raise denied(self)
+        return real_stat(self, follow_symlinks=follow_symlinks)
+
+    def iterdir(self):
+        if str(self) == str(locked) or str(self).startswith(str(locked) + os.sep):
+            raise denied(self)
+        return real_iterdir(self)
+
+    monkeypatch.setattr(Path, "stat", stat)
+    monkeypatch.setattr(Path, "iterdir", iterdir)
+
+
+def test_run_into_another_users_private_result_folder_is_one_line(tmp_path, monkeypatch,
+                                                                  capsys):
+    """Two users share a tree of results; one wrote ``out/`` under umask 077 (mode 0700,
+    measured with a second user made by dropping root's capabilities), the other reruns
+    into it: ``run`` ended in a 20-line PermissionError traceback, exit 1, from listing
+    the folder. Now one line naming the folder and the fix, exit 2, the folder as it was
+    (known truth: its manifest's bytes)."""
+    config = make_bundle(tmp_path / "fen", name="fen.toml")
+    out = tmp_path / "out"
+    assert main(["run", str(config), "--out", str(out), "--quiet"]) == 0
+    before = (out / "manifest.json").read_bytes()
+    capsys.readouterr()
+    with monkeypatch.context() as patched:
+        _unsearchable(patched, out)
+        assert main(["run", str(config), "--out", str(out), "--quiet"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith(f"error: --out {str(out)!r} cannot be read by")
+    assert "Permission denied" in err[0] and "chmod" in err[0]
+    assert (out / "manifest.json").read_bytes() == before
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["fen", "out"]
+
+
+@pytest.mark.parametrize("command", ["report", "export-netcdf", "run-below"])
+def test_an_output_below_another_users_private_folder_is_one_line(tmp_path, monkeypatch,
+                                                                  capsys, command):
+    """``report --out``, ``export --netcdf`` and ``run --out`` to a place inside another
+    user's private folder: ``Path.exists``/``is_file`` raised PermissionError deep in the
+    checks, a traceback, exit 1 (measured for report, both exports, run and batch). Now
+    one line naming the path and the fix, exit 2, nothing written."""
+    pytest.importorskip("h5netcdf")
+    config = make_bundle(tmp_path / "fen", name="fen.toml")
+    result = tmp_path / "result"
+    assert main(["run", str(config), "--out", str(result), "--quiet"]) == 0
+    locked = tmp_path / "theirs"
+    locked.mkdir()
+    target = locked / "sub"
+    argv = {"report": ["report", str(result), "--out", str(target)],
+            "export-netcdf": ["export", str(result), "--netcdf", str(target) + ".nc"],
+            "run-below": ["run", str(config), "--out", str(target), "--quiet"]}[command]
+    capsys.readouterr()
+    with monkeypatch.context() as patched:
+        _unsearchable(patched, locked)
+        assert main(argv) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: '") and "Permission denied" in err[0]
+    assert str(locked) in err[0] and "chmod" in err[0]
+    assert list(locked.iterdir()) == []
