@@ -75,7 +75,7 @@ def test_a_glob_match_that_is_no_readable_file_is_named_not_dropped(tmp_path, ca
 def test_a_folder_link_inside_a_recursive_glob_reads_each_file_once(tmp_path):
     """``**`` with a link back to a parent folder (``a/up -> ..``): glob follows it until the kernel's limit of 40 links
     (path_resolution(7) (m)), so the one file ``a/m01.csv`` was listed 41 times (read 41
-    times, its records dropped as duplicates, the manifest listing 42 files). One file is
+    times, its records dropped as duplicates, the manifest listing it 41 times). One file is
     one (st_dev, st_ino) pair (stat(2) (m)): known truth, the two files once each, in the
     sorted order of their shortest paths, and the 1440 records of the bundle."""
     config = _glob_bundle(tmp_path)
