@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+import errno
 import os
 import re
+import stat
 import tomllib
 from pathlib import Path
 
@@ -360,3 +362,49 @@ def other_system_path_hint(text: str) -> str:
     if not drive:
         return f"; {slashes}"
     return f"; {slashes}, and {mount}" if "\\" in text else f"; {mount}"
+
+
+def odd_entry(path: Path) -> str:
+    """What a glob match that is neither a file nor a folder is, or ``""``.
+
+    A glob lists a directory's entries, so it also matches a symbolic link whose target
+    is missing (a month's file on a network share that is not mounted, an archive moved
+    away), a loop of links, a named pipe, a device or a socket. Taking only the regular
+    files dropped such an entry without a word, and the budget lost its records.
+
+    Parameters
+    ----------
+    path : pathlib.Path
+        One match of the pattern.
+
+    Returns
+    -------
+    str
+        ``"a symbolic link to '...', which does not exist"``, ``"a loop of symbolic
+        links"``, ``"a named pipe"``, ``"a device"``, ``"a socket"``; ``""`` for a file, a
+        folder or an entry that has gone meanwhile (reading it then names it).
+
+    References
+    ----------
+    POSIX.1-2017, ``stat(2)`` and ``<sys/stat.h>`` file types; ``path_resolution(7)``:
+    ELOOP for too many symbolic links, ENOENT for a dangling one (m).
+    """
+    try:
+        mode = path.stat().st_mode
+    except OSError as error:
+        if not path.is_symlink():
+            return ""
+        if error.errno == errno.ELOOP:
+            return "a loop of symbolic links"
+        try:
+            target = os.readlink(path)
+        except OSError:
+            target = "?"
+        return f"a symbolic link to {target!r}, which does not exist"
+    if stat.S_ISFIFO(mode):
+        return "a named pipe"
+    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
+        return "a device"
+    if stat.S_ISSOCK(mode):
+        return "a socket"
+    return ""

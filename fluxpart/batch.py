@@ -62,7 +62,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from ._validate import other_system_path_hint, read_toml, unicode_form_hint
+from ._validate import odd_entry, other_system_path_hint, read_toml, unicode_form_hint
 from .config import Config, suggest_key
 from .errors import ConfigError, FluxpartError, FluxpartWarning, InputFileError, OutputError
 from .fingerprint import code_fingerprint
@@ -400,6 +400,7 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
         # 2, 0 or 1 and refused an existing file as matching nothing. A path that names an
         # existing file is that file (POSIX glob(7): brackets are pattern characters (m))
         if glob.has_magic(pattern) and not full.is_file():
+            _refuse_odd_matches(where, full)
             # the network file is a .toml file too: a glob beside it (*.toml) is not
             # meant to list it as a site
             matches = sorted(Path(p) for p in glob.glob(str(full), recursive=True)
@@ -422,6 +423,28 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
                 seen.add(given)
                 configs.append(given)
     return configs
+
+
+def _refuse_odd_matches(where: str, full: Path) -> None:
+    """Refuse a site-config glob matching a ``.toml`` entry that is no readable file.
+
+    A config linked from a share that is not mounted (a dangling link), a loop of links
+    or a named pipe was dropped by the glob's file test without a word, and the network
+    tables summed the other towers as if the network had one fewer (measured: "4
+    site(s)", the fifth, a dangling link, unnamed). :func:`fluxpart._validate.odd_entry` says
+    what the entry is.
+
+    References
+    ----------
+    Python ``glob`` documentation: broken symlinks are included in the results (m);
+    ``path_resolution(7)``: ELOOP, ENOENT (m).
+    """
+    for text in sorted(glob.glob(str(full), recursive=True)):
+        odd = odd_entry(Path(text)) if text.endswith(".toml") else ""
+        if odd:
+            raise ConfigError(f"{where} matches {text!r}, {odd}: that site would be left out "
+                              "of the network without a word; restore or mount what it "
+                              "stands for, or remove it, or narrow the pattern")
 
 
 def _as_given(path) -> Path:
@@ -596,8 +619,47 @@ def run_site(key: str, config, directory, *, force: bool = False) -> SiteOutcome
         annual, site, notes = _annual_from(directory)
         return SiteOutcome(status="written", note=reason, site=site, annual=annual,
                            warnings=notes, **common)
+    except OSError as error:
+        return _failure(common, vanished_config_error(config, error) or error)
     except Exception as error:  # isolate every site's failure
         return _failure(common, error)
+
+
+def vanished_config_error(config: Path, error: OSError) -> InputFileError | None:
+    """The one-line error of a site config that could not be read when its task ran.
+
+    The batch lists its sites' configs when it starts; a task reads its config when a
+    worker takes it up, seconds to hours later. A config removed, renamed or made
+    unreadable in between (a tidy-up of a shared folder, a sync tool replacing the file,
+    a site retired while the batch ran) failed the site with Python's
+    ``FileNotFoundError`` and a 15-line traceback, as an internal error.
+
+    Parameters
+    ----------
+    config : pathlib.Path
+        The site config of the task.
+    error : OSError
+        The error raised while the site was processed.
+
+    Returns
+    -------
+    InputFileError or None
+        Naming the config, what the system said and the fix; None where `error`
+        concerns another file (an input file, the result folder).
+
+    References
+    ----------
+    ``open(2)``: ENOENT, EACCES and EISDIR name the path that could not be opened,
+    which Python keeps as ``OSError.filename`` (m).
+    """
+    name = error.filename
+    if name is None or os.fsdecode(name) != str(config):
+        return None
+    return InputFileError(
+        f"the site config {str(config)!r} could not be read when its site's turn came "
+        f"({error.strerror or type(error).__name__}): it was removed, moved or made "
+        "unreadable after the batch listed its sites; restore it and run the batch again "
+        "(sites up to date are skipped)")
 
 
 def _checked_site(key: str, config, directory, *, force: bool = False,
@@ -1226,6 +1288,7 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
                 cluster.close()
         finally:
             client_log.setLevel(level)
+    outcomes = [settled_outcome(outcome) for outcome in outcomes]
     try:
         table, failures = _write_network(outcomes, out)
     except OSError as error:          # a full disk after the sites were written
@@ -1240,6 +1303,48 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
                                       + same_name_sites(outcomes, same_records)
                                       + different_settings_sites(outcomes)
                                       + unlisted_site_folders(out, [k for k, _ in network.sites])))
+
+
+def settled_outcome(outcome: SiteOutcome) -> SiteOutcome:
+    """A site whose outcome was lost with the scheduler, as its folder now shows it.
+
+    When the client loses its Dask scheduler (stopped, restarted, its node rebooted),
+    every site not yet reported failed with :class:`SchedulerLostError`, also those a
+    worker had finished, and the network tables were rewritten without them: a
+    restarted scheduler left an empty network table that ``read_network`` returned
+    without a word (measured: 4 site folders intact and current, the network table 0
+    rows). A site whose folder holds the current result of its config
+    (:func:`is_up_to_date`: same config, input, settings, libraries and code, every
+    table as its manifest records) is now counted as up to date and enters the network
+    tables; any other stays failed.
+
+    Parameters
+    ----------
+    outcome : SiteOutcome
+        One site's outcome as the tasks returned it.
+
+    Returns
+    -------
+    SiteOutcome
+        `outcome` itself, or a ``"skipped"`` outcome read from the site's folder.
+
+    References
+    ----------
+    Dask.distributed documentation, "Futures": a client that loses its scheduler
+    cancels every future it holds, whatever the workers did (m).
+    """
+    if outcome.status != "failed" or outcome.error != SchedulerLostError.__name__:
+        return outcome
+    try:
+        if not is_up_to_date(outcome.config, outcome.directory):
+            return outcome
+        annual, site, notes = _annual_from(Path(outcome.directory))
+    except (FluxpartError, OSError):
+        return outcome
+    return SiteOutcome(status="skipped", key=outcome.key, config=outcome.config,
+                       directory=outcome.directory, site=site, annual=annual,
+                       warnings=notes, note="up to date (its outcome was lost with the "
+                       "scheduler; its folder holds the current result)")
 
 
 def _input_hashes(directory: Path) -> tuple:

@@ -132,10 +132,18 @@ def _command_demo(args) -> int:
 
 
 def _enclosing_result(folder: Path) -> Path | None:
-    """The nearest of `folder` and its parents that is a result folder (has a manifest)."""
+    """The nearest of `folder` and its parents that is a result folder (has a manifest).
+
+    A folder this user may not search (another user's, under a private umask) cannot be
+    told: it is passed over (``Path.is_file`` raised PermissionError there, a traceback),
+    and the write into it is refused by the checks that follow.
+    """
     for candidate in (folder, *folder.parents):
-        if (candidate / "manifest.json").is_file():
-            return candidate
+        try:
+            if (candidate / "manifest.json").is_file():
+                return candidate
+        except PermissionError:
+            continue
     return None
 
 
@@ -898,6 +906,17 @@ def main(argv=None) -> int:
             print(f"error: the path {str(error.filename or '')!r} leads through a symbolic "
                   f"link back to itself ({os.strerror(errno.ELOOP)}); fix or remove the link, "
                   "or give another path", file=sys.stderr)
+            return 2
+        if error.errno in (errno.EACCES, errno.EPERM) and error.filename is not None:
+            # a path below a folder this user may not enter (another user's result under a
+            # private umask, in a shared tree): pathlib's exists() and is_file() raise
+            # PermissionError instead of answering (Python 3.11), a 20-line traceback, exit 1
+            # in run, report and export; the write stages were undone as the error unwound
+            print(f"error: {str(error.filename)!r}: {error.strerror}; this user may not enter "
+                  "or change it (another user's folder, or one written under a private "
+                  "umask): choose another place, or ask its owner to open it to others "
+                  f"(chmod -R g+rwX); {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}",
+                  file=sys.stderr)
             return 2
         if error.errno != errno.ENAMETOOLONG:
             raise

@@ -51,6 +51,7 @@ import pyarrow.compute as pc
 
 from ._validate import (
     markup_message,
+    odd_entry,
     other_system_path_hint,
     owner_file_message,
     read_toml,
@@ -1125,6 +1126,43 @@ def _check_keys(table: dict, valid, where: str, spell: str) -> None:
             raise ConfigError(f"{where} {spell.format(key=key)} is unknown{hint}")
 
 
+def _glob_files(pattern: str, item: str) -> list:
+    """The files the glob `pattern` (of ``[input] path = item``) matches, sorted, each once.
+
+    A match that is a dangling or looping link or a special file is refused
+    (:func:`fluxpart._validate.odd_entry`) rather than dropped. One file reached under several paths (a
+    link to a folder such as ``latest -> 2021/06`` inside a ``**`` pattern, or a link
+    back to a parent folder, which ``glob`` follows until the kernel's limit of 40 links
+    and so listed one file 41 times) is kept once, under its shortest path (the first
+    such in sorted order): the same records read again were dropped as duplicates, but
+    the manifest listed the file under every path. The files are returned in the sorted
+    order of those paths, as before for a glob without links.
+
+    References
+    ----------
+    ``path_resolution(7)``: a path resolution follows at most 40 symbolic links (m);
+    ``stat(2)``: one file is one (st_dev, st_ino) pair whatever path reaches it (m).
+    """
+    found: dict = {}
+    for path in sorted(Path(text) for text in glob.glob(pattern, recursive=True)):
+        text = str(path)
+        odd = odd_entry(path)
+        if odd:
+            raise ConfigError(f"[input] path = {setting_text(item)} matches {text!r}, {odd}: "
+                              "its records would be left out without a word; restore or mount "
+                              "what it stands for, or remove it, or narrow the pattern")
+        if not path.is_file():
+            continue
+        try:
+            facts = path.stat()
+            identity = (facts.st_dev, facts.st_ino)
+        except OSError:
+            identity = text
+        if identity not in found or len(path.parts) < len(found[identity].parts):
+            found[identity] = path
+    return sorted(found.values())
+
+
 def _resolve_paths(value, folder: Path) -> tuple:
     """``[input] path`` (a file, a list or a glob) -> existing files, relative to `folder`."""
     items = value if isinstance(value, list) else [value]
@@ -1147,8 +1185,7 @@ def _resolve_paths(value, folder: Path) -> tuple:
             pattern = item if Path(item).is_absolute() else str(
                 Path(glob.escape(str(folder))) / item)
             # "**" spans any depth of folders (logger/2021/06/...), as in [batch] sites
-            matches = sorted(Path(p) for p in glob.glob(pattern, recursive=True)
-                             if Path(p).is_file())
+            matches = _glob_files(pattern, item)
             literal = Path(item) if Path(item).is_absolute() else folder / item
             if literal.is_file():
                 # a file whose name holds a glob character ("tower[1].csv"): that file
@@ -1159,8 +1196,7 @@ def _resolve_paths(value, folder: Path) -> tuple:
                 escaped = item.replace("[", "[[]")
                 escaped = escaped if Path(item).is_absolute() else str(
                     Path(glob.escape(str(folder))) / escaped)
-                matches = sorted(Path(p) for p in glob.glob(escaped, recursive=True)
-                                 if Path(p).is_file())
+                matches = _glob_files(escaped, item)
             if not matches:
                 # a glob's backslash is part of a name outside Windows (as for one file)
                 slashes = other_system_path_hint(item)

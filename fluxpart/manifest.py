@@ -42,6 +42,7 @@ from .errors import InputFileError
 
 __all__ = ["CAUTION", "MANIFEST_FILE", "MANIFEST_FORMAT", "REPORT_FOLDER", "RUN_LOG",
            "build_manifest", "escaped_paths", "library_versions", "manifest_seal", "manifest_text",
+           "newer_format_reason",
            "name_in_other_case",
            "portable_provenance", "read_manifest", "recorded_path", "recorded_paths",
            "seal_intact", "shown_name", "undecodable_message", "undecodable_paths",
@@ -333,6 +334,51 @@ def build_manifest(tables: dict, *, site: dict, config: dict, seed, provenance: 
     }
     manifest["seal"] = manifest_seal(manifest)
     return manifest
+
+
+def newer_format_reason(manifest: dict) -> str | None:
+    """Why this fluxpart cannot judge a result of a newer release's format, or None.
+
+    A result folder of a later release whose manifest format is newer (``/3`` where this
+    code reads ``/2``) was reported as not matching its manifest, with the advice to
+    "rerun to rewrite the folder", and ``verify`` called it NOT reproduced (exit 1): an
+    auditor with an older install read a verdict on a result its code cannot read, and
+    was told to replace that result with an older release's.
+
+    Parameters
+    ----------
+    manifest : dict
+        A parsed ``manifest.json``.
+
+    Returns
+    -------
+    str or None
+        Naming the release and format that wrote it, the format read here and the fix;
+        None for this format, an older one or an unrecognised one (those keep their
+        own message).
+
+    References
+    ----------
+    Semantic Versioning 2.0.0, items 7-8: a format a later release changed cannot be
+    read by an earlier one (m); common practice: a reader refuses a file format version
+    newer than its own rather than guessing (HDF5, Parquet "format version" fields (m)).
+    """
+    from . import __version__
+
+    recorded = manifest.get("format")
+    ours = MANIFEST_FORMAT.rpartition("/")
+    if not isinstance(recorded, str) or not recorded.startswith(ours[0] + "/"):
+        return None
+    number = recorded.rpartition("/")[2]
+    if not number.isdigit() or int(number) <= int(ours[2]):
+        return None
+    code = manifest.get("code") if isinstance(manifest.get("code"), dict) else {}
+    writer = f"fluxpart {code['version']}" if isinstance(code.get("version"), str) else (
+        "a newer fluxpart")
+    return (f"was written by {writer} in format {recorded!r}, newer than the "
+            f"{MANIFEST_FORMAT!r} this fluxpart {__version__} reads: read or verify it with "
+            "that release or a later one (a run into it with this one would replace it "
+            "with an older release's result)")
 
 
 def manifest_bytes(manifest: dict) -> bytes:

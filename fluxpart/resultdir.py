@@ -63,6 +63,7 @@ from .manifest import (
     manifest_bytes,
     manifest_text,
     name_in_other_case,
+    newer_format_reason,
     read_manifest,
     seal_intact,
     shown_name,
@@ -361,9 +362,19 @@ def _swap_in(staging: Path, directory: Path) -> None:
         _fsync_dir(directory.parent)
         shutil.rmtree(staging, ignore_errors=True)      # now holds the old result
         return
+    # a file system without RENAME_EXCHANGE (NFS, SMB, sshfs and other FUSE file systems
+    # (m)): two renames. An interrupt (Ctrl-C, SIGTERM, SIGHUP: raised between two
+    # statements by the handlers) or a failed second rename between them left no folder
+    # at `directory`, the earlier result hidden in the retired folder until the next
+    # writer's clean-up: it is put back at once
     retired = _sibling(directory, _RETIRED, secrets.token_hex(4))
-    directory.rename(retired)
-    staging.rename(directory)
+    try:
+        directory.rename(retired)
+        staging.rename(directory)
+    except BaseException:
+        if not directory.exists() and retired.exists():
+            retired.rename(directory)
+        raise
     _fsync_dir(directory.parent)
     shutil.rmtree(retired, ignore_errors=True)
 
@@ -491,7 +502,11 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
         return "exists and is not a folder (an existing file)"
     if os.path.ismount(directory):
         return _MOUNT_POINT.format(inside=str(directory / "result"))
-    if not any(directory.iterdir()):
+    try:
+        empty = not any(directory.iterdir())
+    except PermissionError as error:
+        return _unlistable_reason(directory, error)
+    if empty:
         return None
     if not (directory / marker).is_file():
         return (f"is a folder that holds other files and no {marker}; it is not {kind}, and "
@@ -512,6 +527,44 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
                 "purpose?); the new one would be swapped in while the old one could not be "
                 "removed and would stay hidden beside it: make it writable (chmod -R u+w)")
     return other_site_reason(directory, site_name)
+
+
+def _unlistable_reason(directory: Path, error: OSError) -> str:
+    """Why a folder this user cannot list must not be replaced (see :func:`replace_refusal`).
+
+    Two users sharing a tree of results: one wrote a result under a private umask (077,
+    the folder 0700, as :func:`fluxpart.store.folder_mode` follows it), the other runs
+    into the same ``--out``. Listing the folder raised ``PermissionError`` and ``run``
+    ended in a 20-line traceback, exit 1.
+
+    Parameters
+    ----------
+    directory : pathlib.Path
+        The folder.
+    error : OSError
+        The error of listing it.
+
+    Returns
+    -------
+    str
+        The reason, naming the folder's owner where it can be told, and the fix.
+
+    References
+    ----------
+    POSIX.1-2017 ``opendir``: EACCES where read permission is denied on the directory;
+    ``rename(2)``: a directory's own write permission is needed to move it (m).
+    """
+    try:
+        facts = directory.stat()
+        import pwd
+
+        owner = pwd.getpwuid(facts.st_uid).pw_name
+    except (OSError, KeyError, ImportError):
+        owner = None
+    whose = f" (owned by {owner!r}, mode {oct(facts.st_mode & 0o777)[2:]})" if owner else ""
+    return (f"cannot be read by this user{whose}: {error.strerror or error}; it belongs to "
+            "another user or was written under a private umask, and this user could neither "
+            "check nor replace it: ask its owner to open it to others (chmod -R g+rwX)")
 
 
 #: Characters the longest name written beside a folder ``NAME`` adds to it: its staging or
@@ -915,9 +968,9 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
         problems.append(FolderProblem(MANIFEST_FILE, "seal", "was edited after it was written "
                                       "(its seal does not match its content)"))
     if manifest.get("format") != MANIFEST_FORMAT:
-        problems.append(FolderProblem(MANIFEST_FILE, "format",
-                                      f"has format {manifest.get('format')!r}; this fluxpart reads "
-                                      f"{MANIFEST_FORMAT!r} (rerun to rewrite the folder)"))
+        problems.append(FolderProblem(MANIFEST_FILE, "format", newer_format_reason(manifest)
+                                      or f"has format {manifest.get('format')!r}; this fluxpart "
+                                      f"reads {MANIFEST_FORMAT!r} (rerun to rewrite the folder)"))
     allowed_files, allowed_dirs = {MANIFEST_FILE}, set()
     unhashed = manifest.get("unhashed") if isinstance(manifest.get("unhashed"), dict) else {}
     if RUN_LOG in unhashed:

@@ -85,6 +85,7 @@ from .manifest import (
     CAUTION,
     escaped_paths,
     library_versions,
+    newer_format_reason,
     read_manifest,
     recorded_path,
     without_paths,
@@ -1405,6 +1406,9 @@ def _read_stored(directory: Path):
     for _attempt in range(3):
         before = folder_identity(directory)
         manifest = read_manifest(directory)
+        newer = newer_format_reason(manifest)
+        if newer:
+            raise InputFileError(f"verify: {str(directory)!r} {newer}; not judged")
         for key in ("config", "site", "provenance", "tables"):
             if not isinstance(manifest.get(key), dict):
                 raise InputFileError(f"verify: {str(directory / 'manifest.json')!r} has no "
