@@ -40,7 +40,18 @@ _METHOD_LABELS = {gapfill.METHOD_UNFILLED: "unfilled", gapfill.METHOD_MEASURED: 
 
 
 def labelled(timeseries: pd.DataFrame) -> pd.DataFrame:
-    """Rejection reason, fill method and fill qualities as labelled (dictionary) columns."""
+    """Rejection reason, fill method and fill qualities as labelled (dictionary) columns.
+
+    Parameters
+    ----------
+    timeseries : pandas.DataFrame
+        The time series with the integer codes.
+
+    Returns
+    -------
+    pandas.DataFrame
+        A copy whose coded columns hold their labels (:func:`fluxpart.schema.as_labels`).
+    """
     labels = {"rejection_reason": screening.REASON_CODES, "nee_fill_method": _METHOD_LABELS}
     labels.update({c: _QUALITY_LABELS for c in timeseries.columns if c.endswith("_fill_quality")})
     return timeseries.assign(**{column: schema.as_labels(timeseries[column].to_numpy(), names)

@@ -284,3 +284,27 @@ def test_the_benchmarks_time_stage_functions_that_exist():
         if owner is None:
             missing.append(f"{module_name}.{name}")
     assert not missing, missing
+
+
+def test_every_public_function_of_the_stage_modules_has_a_numpy_docstring():
+    """The house rule (numpydoc's docstring standard, common practice) on every public
+    function the stage modules define, not only the hand-overs (round review34: 17 of them,
+    moved from pipeline.py with their one-line private docstrings, had no Parameters
+    section, `canonical_frame.respiration_setting` no docstring at all): Parameters, and
+    Returns or (for a check that returns nothing) Raises."""
+    import importlib
+    import inspect
+
+    lacking = []
+    for name in STAGE_MODULES:
+        module = importlib.import_module(f"fluxpart.{name}")
+        for public, member in vars(module).items():
+            if (public.startswith("_") or not inspect.isfunction(member)
+                    or member.__module__ != module.__name__):
+                continue
+            text = inspect.getdoc(member) or ""
+            sections = {s for s in ("Parameters", "Returns", "Raises")
+                        if f"{s}\n{'-' * len(s)}" in text}
+            if "Parameters" not in sections or not sections & {"Returns", "Raises"}:
+                lacking.append(f"{name}.{public}")
+    assert not lacking, lacking
