@@ -26,7 +26,23 @@ from .variables import REQUIRED, VARIABLES
 
 
 def checked_config(config) -> Config:
-    """The settings given, or the published defaults; anything else is refused."""
+    """The settings given, or the published defaults; anything else is refused.
+
+    Parameters
+    ----------
+    config : Config or None
+        The caller's settings.
+
+    Returns
+    -------
+    Config
+        `config`, or ``Config()`` where it is None.
+
+    Raises
+    ------
+    ConfigError
+        If `config` is neither None nor a :class:`~fluxpart.config.Config`.
+    """
     if config is None:
         return Config()
     if not isinstance(config, Config):
@@ -37,7 +53,20 @@ def checked_config(config) -> Config:
 
 
 def require_columns(frame: pd.DataFrame) -> None:
-    """Refuse a frame without the required columns, naming the columns it has."""
+    """Refuse a frame without the required columns, naming the columns it has.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The caller's record, canonical column names (``nee``, ``rg``, ...).
+
+    Raises
+    ------
+    MissingColumnError
+        If a required column is missing (a case-only difference and a ``vpd`` that
+        ``rh`` and ``tair`` give named), a name is repeated, or the labels have several
+        levels.
+    """
     if isinstance(frame.columns, pd.MultiIndex):
         raise MissingColumnError(f"the frame's column labels have {frame.columns.nlevels} "
                                  "levels; give one level of canonical names (nee, rg, ...), "
@@ -58,7 +87,26 @@ def require_columns(frame: pd.DataFrame) -> None:
 
 
 def validate(frame: pd.DataFrame) -> int:
-    """Check the canonical frame once; return its interval [minutes]."""
+    """Check the canonical frame once; return its interval.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Canonical record (:func:`prepare`'s output) on a tz-naive DatetimeIndex of
+        interval starts.
+
+    Returns
+    -------
+    int
+        The record interval, 30 or 60 [minutes].
+
+    Raises
+    ------
+    FluxpartError
+        (a subclass) naming the column or row: not a DataFrame, no DatetimeIndex, a
+        tz-aware index, a required column missing or empty, a non-numeric column,
+        stamps not strictly increasing or not regularly 30 or 60 minutes apart.
+    """
     if not isinstance(frame, pd.DataFrame):
         raise FluxpartError(f"process() needs a pandas DataFrame, got {type(frame).__name__}")
     if not isinstance(frame.index, pd.DatetimeIndex):
@@ -98,6 +146,21 @@ def prepare(frame, site: Site) -> tuple:
     ``site.utc_offset``, no daylight saving) and made tz-naive; columns that are not
     canonical variables are left out; numeric columns become float64 (missing values
     and infinities NaN). The caller's frame is not modified.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The caller's record (anything else is returned as given, for :func:`validate`
+        to refuse).
+    site : Site
+        The tower; its ``utc_offset`` [hours] converts a tz-aware index.
+
+    Returns
+    -------
+    frame : pandas.DataFrame
+        The canonical record.
+    notes : list of str
+        Warnings on what was changed (time zone, columns left out, infinities).
     """
     notes = []
     if not isinstance(frame, pd.DataFrame):
@@ -134,14 +197,50 @@ def prepare(frame, site: Site) -> tuple:
 
 
 def budget_record(frame: pd.DataFrame, config: Config, interval: int) -> tuple:
-    """The frame on its budget years (:func:`fluxpart.timestamps.budget_year_edges`): a
-    fragment of less than a day left out, edge records up to a day added as gaps; and
-    the notes saying so."""
+    """The frame on its budget years (:func:`fluxpart.timestamps.budget_year_edges`).
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Canonical, validated record.
+    config : Config
+        Settings; ``year_start`` (``"MM-DD"``) opens each budget year.
+    interval : int
+        Record interval [minutes].
+
+    Returns
+    -------
+    frame : pandas.DataFrame
+        The record with a budget year's fragment of less than a day left out and up to
+        a day absent at a year's edges added as empty records (the same object where
+        neither applies).
+    notes : list of str
+        Warnings saying so.
+    """
     index, notes = timestamps.budget_year_edges(frame.index, interval, config.year_start)
     return (frame.reindex(index) if notes else frame), notes
 
 
 def respiration_setting(config: Config, frame: pd.DataFrame) -> str:
+    """The ``respiration_driver`` setting, checked against the record's columns.
+
+    Parameters
+    ----------
+    config : Config
+        Settings; ``respiration_driver`` is ``"auto"``, ``"tair"`` or ``"tsoil"``.
+    frame : pandas.DataFrame
+        Canonical record.
+
+    Returns
+    -------
+    str
+        ``config.respiration_driver`` as set.
+
+    Raises
+    ------
+    ConfigError
+        If a set temperature has no column or no value in the record.
+    """
     driver = config.respiration_driver
     if driver != "auto" and driver not in frame.columns:
         raise ConfigError(f"[processing] respiration_driver = {driver!r}, but the input has no "

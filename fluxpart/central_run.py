@@ -79,7 +79,21 @@ def averaged_form(frame, filled_drivers, central, is_night, temperature, config,
 
 
 def shifted(night, shift):
-    """A nighttime result with `shift` [µmol m-2 s-1] added to its Reco and GPP."""
+    """A nighttime result with `shift` added to its Reco and GPP.
+
+    Parameters
+    ----------
+    night : fluxpart.partition.nighttime.NighttimeResult
+        A run's nighttime partitioning.
+    shift : numpy.ndarray or float
+        The respiration form's shift of each record [µmol m-2 s-1].
+
+    Returns
+    -------
+    fluxpart.partition.nighttime.NighttimeResult
+        `night` itself where the shift is 0 everywhere, else a copy with ``reco`` and
+        ``gpp`` shifted [µmol m-2 s-1].
+    """
     if not np.any(shift):
         return night
     return dataclasses.replace(night, reco=night.reco + shift, gpp=night.gpp + shift)
@@ -141,9 +155,24 @@ def daytime_driver_evidence(frame, screened, filled_drivers, central, is_night, 
 
 
 def fallback_e0_text(parameters, fell_back, e0_annual) -> str:
-    """The E0 the daytime windows without their own took (`fit_daytime`: the median of
-    the nighttime method's per-record E0), named with each calendar year's E0 where the
-    record has several: the median of a record's records can be a value no year has."""
+    """The E0 the daytime windows without their own took, as a warning's words.
+
+    Parameters
+    ----------
+    parameters : pandas.DataFrame
+        The daytime window table (``e0`` [K]).
+    fell_back : pandas.Series of bool
+        The windows that took the nighttime method's E0 (:func:`fluxpart.ustar_runs.
+        fit_daytime`: the median of its per-record E0).
+    e0_annual : pandas.DataFrame
+        The nighttime method's E0 per calendar year (``e0`` [K]).
+
+    Returns
+    -------
+    str
+        The E0 [K], named with each calendar year's where the record has several (the
+        median of a record's records can be a value no year has).
+    """
     value = float(parameters.loc[fell_back.to_numpy(), "e0"].iloc[0])
     years = e0_annual.dropna(subset=["e0"]) if "e0" in getattr(e0_annual, "columns", ()) \
         else None

@@ -65,10 +65,30 @@ def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, value
 
 
 def nighttime_settings(config, rg, index, nearest_year=False) -> dict:
-    """Keyword settings of :func:`nighttime.partition_nighttime` from `config`, with the
-    measured global radiation `rg` [W m-2] its low-light Rref rule needs, the events'
-    pieces of the record `index` (only where events are declared), and `nearest_year`:
-    a year without an E0 of its own takes the nearest year's."""
+    """Keyword settings of :func:`fluxpart.partition.nighttime.partition_nighttime`.
+
+    Parameters
+    ----------
+    config : Config
+        Settings (the ``e0_*`` and ``rref_*`` fields and ``events``).
+    rg : numpy.ndarray
+        Measured global radiation of each record, for the low-light Rref rule [W m-2].
+    index : pandas.DatetimeIndex
+        The record's stamps (the events' pieces, only where events are declared).
+    nearest_year : bool, optional
+        A year without an E0 of its own takes the nearest year's.
+
+    Returns
+    -------
+    dict
+        Keyword arguments of the nighttime method.
+
+    References
+    ----------
+    Reichstein, M., et al. (2005). On the separation of net ecosystem exchange into
+    assimilation and ecosystem respiration. Global Change Biology 11(9):1424-1439.
+    doi:10.1111/j.1365-2486.2005.001002.x
+    """
     extra = {"e0_nearest_year": True} if nearest_year else {}
     extra.update(event_cut(index, config))
     return {**extra, "e0_window_days": config.e0_window_days,
@@ -84,16 +104,44 @@ def nighttime_settings(config, rg, index, nearest_year=False) -> dict:
 
 
 def event_cut(index, config) -> dict:
-    """``breaks`` of the partitionings' windows where `config` declares events, else none
-    (a run without events calls them exactly as before)."""
+    """``breaks`` of the partitionings' windows where `config` declares events.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        The record's stamps.
+    config : Config
+        Settings; ``events`` (dates of declared events).
+
+    Returns
+    -------
+    dict
+        ``{"breaks": positions}`` (:func:`fluxpart.gapfill.event_breaks`), or empty
+        where no event is declared (a run without events calls them exactly as before).
+    """
     return {"breaks": gapfill.event_breaks(index, config.events)} if config.events else {}
 
 
 def respiration_temperature(table, name, delay, filled=False) -> np.ndarray:
-    """The respiration driver `name` from `table` [°C], delayed by `delay` records.
+    """The respiration driver `name` from `table`, delayed by `delay` records.
 
-    ``filled``: the gap-filled column (evaluated at every record; the first
-    records take the first value), else the measured one (NaN-padded for fits).
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        Holds ``name`` and ``name_filled``.
+    name : str
+        ``"tair"`` or ``"tsoil"``.
+    delay : int
+        Records by which the temperature is delayed (:func:`fluxpart.partition.
+        temperature_choice.delayed`) [records].
+    filled : bool, optional
+        The gap-filled column (evaluated at every record; the first records take the
+        first value), else the measured one (NaN-padded for fits).
+
+    Returns
+    -------
+    numpy.ndarray
+        The temperature of each record [°C].
     """
     values = table[f"{name}_filled" if filled else name].to_numpy(dtype=float)
     return temperature_choice.delayed(values, delay, pad="first" if filled else "nan")

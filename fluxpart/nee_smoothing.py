@@ -33,7 +33,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["SMOOTHED_CORRELATION", "smoothed_nee"]
+__all__ = ["SMOOTHED_CORRELATION", "running_mean_length", "smoothed_nee"]
 
 #: Correlation of consecutive night changes of NEE at or above which the column is named
 #: [1]. Independent errors give -0.5 (the signal's slow drift raises it a little); a
@@ -164,6 +164,76 @@ def _pair_correlation(x, night, minimum):
     # sums of products, not BLAS: the same bits on every CPU and thread count
     a, b = a - a.mean(), b - b.mean()
     return float(np.sum(a * b) / np.sqrt(np.sum(a * a) * np.sum(b * b))), int(pair.sum())
+
+
+#: The longest running mean whose length :func:`running_mean_length` looks for [records]:
+#: eight records are four hours of a half-hourly record, beyond any smoothing that keeps
+#: a diurnal course (our choice; the round's examples are means of two, three and five).
+_LONGEST_MEAN = 8
+#: Correlation of night changes `k` records apart at or below which `k` is read as the
+#: running mean's length [1]: halfway between the 0 of shorter lags and the -1/2 of lag
+#: `k` (see :func:`running_mean_length`).
+_LENGTH_CORRELATION = -0.25
+
+
+def running_mean_length(nee, night) -> int | None:
+    """The number of records a running mean of `nee` spans, read from its night changes.
+
+    Parameters
+    ----------
+    nee : array_like
+        NEE of each record [µmol m-2 s-1 or any unit: only changes are compared].
+    night : array_like of bool
+        Records with the sun down.
+
+    Returns
+    -------
+    int or None
+        The smallest lag `k` from 2 to 8 records at which night changes `k` records apart
+        correlate at -0.25 or below (over 100 pairs or more), or None where none does (no
+        running mean, one of another shape such as an exponential filter, or too few
+        pairs).
+
+    Notes
+    -----
+    A running mean of `k` records of independent errors e changes from one record to the
+    next by (e[t+k] - e[t]) / k: two changes fewer than `k` records apart share no error
+    (correlation 0), two changes `k` apart share e[t+k] with opposite signs (correlation
+    -1/2), as consecutive changes of unsmoothed records do (Hollinger & Richardson 2005
+    (m)). The median change of such a mean is the single records' divided by `k`, which
+    the unit check uses to judge a smoothed column's noise at the single records' scale.
+    Pairs holding a change of exactly 0 (a value repeated) are dropped, as in
+    :func:`smoothed_nee`.
+
+    References
+    ----------
+    Hollinger, D. Y., & Richardson, A. D. (2005). Uncertainty in eddy covariance
+    measurements and its application to physiological models. Tree Physiology
+    25(7):873-885. doi:10.1093/treephys/25.7.873 (m)
+    """
+    x = np.asarray(nee, dtype=float)
+    night = np.asarray(night, dtype=bool)
+    if x.size < _LONGEST_MEAN + 3 or night.shape != x.shape:
+        return None
+    change = np.diff(x)
+    usable = night[1:] & night[:-1] & np.isfinite(change) & (change != 0.0)
+    if not usable.any():
+        return None
+    bound = 5.0 * 1.4826 * float(np.median(np.abs(change[usable])))
+    if not bound > 0.0:
+        return None
+    clipped = np.clip(np.where(usable, change, 0.0), -bound, bound)
+    for lag in range(2, _LONGEST_MEAN + 1):
+        pair = usable[:-lag] & usable[lag:]
+        if int(pair.sum()) < _MIN_PAIRS:
+            return None
+        a, b = clipped[:-lag][pair], clipped[lag:][pair]
+        a, b = a - a.mean(), b - b.mean()
+        scale = np.sqrt(np.sum(a * a) * np.sum(b * b))
+        # sums of products, not BLAS: the same bits on every CPU and thread count
+        if scale > 0.0 and float(np.sum(a * b) / scale) <= _LENGTH_CORRELATION:
+            return lag
+    return None
 
 
 def _message(column, r, pairs, where):

@@ -19,7 +19,40 @@ from .partition import temperature_choice
 
 
 def chosen_temperature(driver, index, screened, is_night, threshold, config):
-    """Resolve ``respiration_driver = "auto"`` on the u*-filtered night NEE (else as set)."""
+    """Resolve ``respiration_driver = "auto"`` on the u*-filtered night NEE (else as set).
+
+    Parameters
+    ----------
+    driver : str
+        ``"auto"``, ``"tair"`` or ``"tsoil"``.
+    index : pandas.DatetimeIndex
+        The record's stamps.
+    screened : pandas.DataFrame
+        The screened record (``nee`` [µmol m-2 s-1], ``ustar`` [m s-1], ``tair`` and
+        ``tsoil`` [°C], ``rg`` [W m-2]).
+    is_night : numpy.ndarray of bool
+        The night mask.
+    threshold : numpy.ndarray
+        The central run's u* threshold of each record [m s-1].
+    config : Config
+        Settings of the nighttime method.
+
+    Returns
+    -------
+    driver : str
+        The temperature chosen (or as set).
+    choice : fluxpart.partition.temperature_choice.TemperatureChoice or None
+        The choice and its fits; None where the driver was set; air temperature with
+        the nighttime fit's error as its reason where no fit could be compared.
+
+    References
+    ----------
+    Lloyd, J. & Taylor, J. A. (1994). On the temperature dependence of soil respiration.
+    Functional Ecology 8(3):315-323. doi:10.2307/2389824
+
+    Schwarz, G. (1978). Estimating the dimension of a model. Annals of Statistics
+    6(2):461-464. doi:10.1214/aos/1176344136 (the BIC the choice compares)
+    """
     if driver != "auto":
         return driver, None
     too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
@@ -43,8 +76,25 @@ def chosen_temperature(driver, index, screened, is_night, threshold, config):
 
 
 def forced_temperature_note(driver, index, screened, is_night, threshold, config):
-    """The warning of a set respiration temperature the night data reject, or None
-    (:func:`temperature_choice.forced_driver_note` on what ``"auto"`` would choose)."""
+    """The warning of a set respiration temperature the night data reject, or None.
+
+    Parameters
+    ----------
+    driver, index, screened, is_night, threshold, config
+        As for :func:`chosen_temperature`.
+
+    Returns
+    -------
+    str or None
+        :func:`fluxpart.partition.temperature_choice.forced_driver_note` on what
+        ``"auto"`` would choose; None for ``"auto"``, a record without soil
+        temperature, or where the choice cannot be fitted.
+
+    References
+    ----------
+    Schwarz, G. (1978). Estimating the dimension of a model. Annals of Statistics
+    6(2):461-464. doi:10.1214/aos/1176344136
+    """
     if driver == "auto" or "tsoil" not in screened.columns:
         return None
     try:

@@ -27,20 +27,29 @@ BUDGET_FLUXES = {"nee_filled": "nee", "gpp_nighttime": "gpp_nighttime",
 REASON_LOW_USTAR = {name: code for code, name in screening.REASON_CODES.items()}["low_ustar"]
 REASON_MORNING_RELEASE = {name: code for code, name
                           in screening.REASON_CODES.items()}["morning_release"]
-#: Labels of the fill-quality codes of gap filling (its own mapping where it has one).
-_QUALITY_LABELS = getattr(gapfill, "QUALITY_NAMES", None) or {
-    gapfill.QUALITY_UNFILLED: "unfilled", gapfill.QUALITY_MEASURED: "measured",
-    gapfill.QUALITY_A: "A", gapfill.QUALITY_B: "B", gapfill.QUALITY_C: "C"}
+#: Labels of the fill-quality codes of gap filling (its own mapping).
+_QUALITY_LABELS = gapfill.QUALITY_NAMES
 #: Labels of the fill-method codes of gap filling.
 _METHOD_LABELS = {gapfill.METHOD_UNFILLED: "unfilled", gapfill.METHOD_MEASURED: "measured",
                   gapfill.METHOD_ALL_DRIVERS: "similar_drivers",
                   gapfill.METHOD_RADIATION: "similar_radiation",
                   gapfill.METHOD_DIURNAL_COURSE: "diurnal_course",
-                  getattr(gapfill, "METHOD_INTERPOLATED", 4): "interpolated"}
+                  gapfill.METHOD_INTERPOLATED: "interpolated"}
 
 
 def labelled(timeseries: pd.DataFrame) -> pd.DataFrame:
-    """Rejection reason, fill method and fill qualities as labelled (dictionary) columns."""
+    """Rejection reason, fill method and fill qualities as labelled (dictionary) columns.
+
+    Parameters
+    ----------
+    timeseries : pandas.DataFrame
+        The time series with the integer codes.
+
+    Returns
+    -------
+    pandas.DataFrame
+        A copy whose coded columns hold their labels (:func:`fluxpart.schema.as_labels`).
+    """
     labels = {"rejection_reason": screening.REASON_CODES, "nee_fill_method": _METHOD_LABELS}
     labels.update({c: _QUALITY_LABELS for c in timeseries.columns if c.endswith("_fill_quality")})
     return timeseries.assign(**{column: schema.as_labels(timeseries[column].to_numpy(), names)

@@ -59,7 +59,41 @@ def geometry_and_screening(frame, site, config, interval):
 
 def clock_and_preflight(frame, site, config, interval, geometry, is_night, screens,
                         reader=None):
-    """The clock verdict (None when ``clock_check = "off"``) and the preflight findings."""
+    """The clock and site-geometry verdict and the preflight findings of a record.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        Canonical record on its budget years.
+    site : Site
+        The tower's location.
+    config : Config
+        Settings (``clock_check`` and every setting a stage's preflight reads).
+    interval : int
+        Record interval [minutes].
+    geometry : pandas.DataFrame
+        ``potential_radiation`` [W m-2] and ``sun_elevation`` [degrees] per record.
+    is_night : numpy.ndarray of bool
+        The night mask.
+    screens : fluxpart.screening.Screening
+        The screened record and its flags.
+    reader : dict, optional
+        ``time_marks``, ``shift_minutes`` [minutes] and ``columns`` of the file reader,
+        named in the messages.
+
+    Returns
+    -------
+    verdict : fluxpart.clock.ClockVerdict or None
+        None where ``clock_check = "off"``.
+    findings : list of fluxpart.preflight.Finding
+        Conditions under which a stage fails (``fatal``) or falls back.
+
+    References
+    ----------
+    Michalsky, J. J. (1988). The Astronomical Almanac's algorithm for approximate solar
+    position (1950-2050). Solar Energy 40(3):227-235. doi:10.1016/0038-092X(88)90045-X
+    (the potential radiation the clock check compares Rg with; :mod:`fluxpart.clock`)
+    """
     reader = reader or {}
     verdict = None
     if config.clock_check != "off":
@@ -80,7 +114,24 @@ def clock_and_preflight(frame, site, config, interval, geometry, is_night, scree
 
 
 def refuse(verdict, findings, config) -> None:
-    """Stop before any fit on a clock problem (unless allowed) or a fatal finding."""
+    """Stop before any fit on a clock problem (unless allowed) or a fatal finding.
+
+    Parameters
+    ----------
+    verdict : fluxpart.clock.ClockVerdict or None
+        The clock check's verdict.
+    findings : list of fluxpart.preflight.Finding
+        The preflight findings.
+    config : Config
+        Settings; ``clock_check = "refuse"`` makes a clock problem stop the run.
+
+    Raises
+    ------
+    ConfigError
+        On a clock problem, naming ``clock_check = "warn"``.
+    InsufficientDataError
+        On a fatal finding.
+    """
     clock_problems = list(verdict.problems) if verdict is not None else []
     if config.clock_check != "refuse":
         clock_problems = []

@@ -38,11 +38,66 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
                        night_fits, error_model=None, form=None, delay=0, day_evidence=None):
     """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals.
 
-    `night_fits`: nighttime fits on the central measured NEE and the input's temperature
-    columns (by driver), reused for the other driver's Reco. `day_evidence`: (statistic,
-    other temperature's name) of :func:`fluxpart.central_run.daytime_driver_evidence`, or
-    None. Also returns the warning of a temperature choice the daytime records contradict
-    (a list).
+    Parameters
+    ----------
+    daily, monthly, annual : pandas.DataFrame
+        The budget tables [g C m-2] (:func:`fluxpart.budget.aggregate`).
+    timeseries : pandas.DataFrame
+        The central run's time series (``nee_measured``, ``nee_filled`` [µmol m-2 s-1],
+        the temperatures [°C], ``rg`` [W m-2], ...).
+    outcomes : dict of str to fluxpart.ustar_runs.RunOutcome
+        Every u* run's fill and partitionings, by run name (``"central"``, ...).
+    sigma : numpy.ndarray
+        Random error of each record's NEE (1 sigma) [µmol m-2 s-1].
+    conditions : pandas.DataFrame
+        The drivers the NEE fill compares (:func:`fluxpart.method_settings.fill_nee`).
+    is_night : numpy.ndarray of bool
+        The night mask.
+    night, day : fluxpart.partition.nighttime.NighttimeResult, fluxpart.partition.daytime.DaytimeResult
+        The central run's partitionings.
+    temperature : str
+        The respiration temperature (``"tair"`` or ``"tsoil"``).
+    interval : int
+        Record interval [minutes].
+    config : Config
+        Settings.
+    year_keys : numpy.ndarray
+        Budget year of each record.
+    night_fits : dict
+        Nighttime fits on the central measured NEE and the input's temperature columns
+        (by driver), reused for the other driver's Reco.
+    error_model : fluxpart.uncertainty.RandomErrorModel, optional
+        The random-error model of NEE.
+    form : fluxpart.partition.respiration_form.FormAverage, optional
+        The respiration forms' average and spread.
+    delay : int, optional
+        Delay of the respiration temperature [records].
+    day_evidence : tuple, optional
+        (statistic, other temperature's name) of
+        :func:`fluxpart.central_run.daytime_driver_evidence`.
+
+    Returns
+    -------
+    daily, monthly : pandas.DataFrame
+        The tables with their 1-sigma columns [g C m-2].
+    annual : pandas.DataFrame
+        The annual budget with every part of its uncertainty and the stated 95 %
+        intervals [g C m-2].
+    gapfill_model : pandas.DataFrame
+        The gap-filling error model's parameters.
+    notes : list of str
+        Warnings: a temperature choice the daytime records contradict, a long gap whose
+        change of state weighs on its year.
+
+    References
+    ----------
+    Hollinger, D. Y., & Richardson, A. D. (2005). Uncertainty in eddy covariance
+    measurements and its application to physiological models. Tree Physiology
+    25(7):873-885. doi:10.1093/treephys/25.7.873
+
+    Richardson, A. D. & Hollinger, D. Y. (2007). A method to estimate the additional
+    uncertainty in gap-filled NEE resulting from long gaps in the CO2 flux record.
+    Agricultural and Forest Meteorology 147:199-208. doi:10.1016/j.agrformet.2007.06.004
     """
     index = timeseries.index
     nee_measured = timeseries["nee_measured"].to_numpy(dtype=float)

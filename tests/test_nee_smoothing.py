@@ -153,3 +153,27 @@ def test_a_mean_that_skips_blanks_around_many_gaps_is_named():
     twice = nee.copy()
     twice[1::2] = twice[0::2]
     assert smoothed_nee(twice, night, None, frame.index) is None
+
+
+def test_the_length_of_a_running_mean_is_read_from_its_night_changes():
+    """Known-truth recovery (round review34) on invented white noise (Laplace errors, the
+    random error's shape, Hollinger & Richardson 2005 (m)): a running mean of k records
+    changes by (e[t+k] - e[t]) / k, so changes k records apart correlate at -1/2 and
+    nearer ones at 0; the first lag at -0.25 or below is k. Unsmoothed records (their
+    -1/2 is at lag 1), an exponential filter (no lag at -1/2) and too few night pairs give
+    None."""
+    from fluxpart.nee_smoothing import running_mean_length
+
+    rng = np.random.default_rng(4)
+    noise = rng.laplace(0.0, 0.7, 8000)
+    night = np.ones(noise.size, dtype=bool)
+    for k in range(2, 9):
+        mean = pd.Series(noise).rolling(k, center=True, min_periods=k).mean().to_numpy()
+        assert running_mean_length(mean, night) == k, k
+    assert running_mean_length(noise, night) is None
+    filtered = pd.Series(noise).ewm(alpha=0.3).mean().to_numpy()
+    assert running_mean_length(filtered, night) is None
+    short = np.zeros(noise.size, dtype=bool)
+    short[:60] = True
+    three = pd.Series(noise).rolling(3, center=True, min_periods=3).mean().to_numpy()
+    assert running_mean_length(three, short) is None

@@ -116,14 +116,14 @@ own = time.process_time()
 spent = {}
 STAGES = [("fluxpart.io", "SiteConfig.read", "read the input"),
           ("fluxpart.pipeline", "process", "process (all stages)"),
-          ("fluxpart.pipeline", "_clock_and_preflight", "  clock and preflight"),
-          ("fluxpart.pipeline", "_chosen_temperature", "  respiration temperature"),
-          ("fluxpart.pipeline", "_ustar_thresholds", "  u* threshold and bootstrap"),
-          ("fluxpart.pipeline", "_fill_and_partition", "  fill and partition (u* runs)"),
+          ("fluxpart.screening_stage", "clock_and_preflight", "  clock and preflight"),
+          ("fluxpart.respiration_driver", "chosen_temperature", "  respiration temperature"),
+          ("fluxpart.ustar_stage", "ustar_thresholds", "  u* threshold and bootstrap"),
+          ("fluxpart.ustar_runs", "fill_and_partition", "  fill and partition (u* runs)"),
           ("fluxpart.gapfill", "fill_marginal", "    NEE fills"),
           ("fluxpart.partition.nighttime", "partition_nighttime", "    nighttime"),
           ("fluxpart.partition.daytime", "partition_daytime", "    daytime"),
-          ("fluxpart.pipeline", "_uncertainty", "  uncertainty"),
+          ("fluxpart.uncertainty_assembly", "budget_uncertainty", "  uncertainty"),
           ("fluxpart.pipeline", "Result.write", "write the result folder")]
 def timed(label, function):
     @functools.wraps(function)

@@ -22,14 +22,15 @@ import tracemalloc
 
 from fluxpart import Config, demo, process
 
-# (module, function) pairs timed by --stages; the pipeline calls each through its module
-# (``daytime.partition_daytime``), so replacing the module attribute is enough
+# (module, function) pairs timed by --stages; the stage modules call each through its module
+# or as a global of its own module (``daytime.partition_daytime``,
+# ``fill_and_partition``), so replacing the module attribute is enough
 _STAGES = [
-    ("fluxpart.pipeline", "_clock_and_preflight"),
-    ("fluxpart.pipeline", "_chosen_temperature"),
-    ("fluxpart.pipeline", "_ustar_thresholds"),
-    ("fluxpart.pipeline", "_fill_and_partition"),
-    ("fluxpart.pipeline", "_uncertainty"),
+    ("fluxpart.screening_stage", "clock_and_preflight"),
+    ("fluxpart.respiration_driver", "chosen_temperature"),
+    ("fluxpart.ustar_stage", "ustar_thresholds"),
+    ("fluxpart.ustar_runs", "fill_and_partition"),
+    ("fluxpart.uncertainty_assembly", "budget_uncertainty"),
     ("fluxpart.gapfill", "fill_marginal"),
     ("fluxpart.partition.nighttime", "partition_nighttime"),
     ("fluxpart.partition.daytime", "partition_daytime"),
