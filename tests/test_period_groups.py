@@ -6,7 +6,8 @@ one stable sort (:func:`fluxpart._groups.group_positions`), and the latitude sca
 clock check takes every month's width in one pass. Each test compares the new code with
 the per-period selection it replaces, written here with NumPy's own ``flatnonzero`` and
 ``sum`` (the outside reference), on invented data: the same values in the same order give
-the same bits.
+the same bits. The sun's course over a record, asked for four times in a run, is kept and
+compared with the course computed afresh.
 """
 import math
 
@@ -210,3 +211,38 @@ def test_crossing_widths_of_all_rows_are_crossings_bit_for_bit():
         expected = [clock._crossings(row, 30.0, clock.EDGE_LEVEL)[1] for row in curves]
         np.testing.assert_array_equal(_bits(widths), _bits(expected))
         assert np.isfinite(widths).sum() > 150 if slots >= 24 else True
+
+
+def test_the_sun_course_kept_for_the_same_stamps_is_the_course_computed_afresh():
+    """`solar.interval_sun` returns the course it kept only for the same stamps, position
+    and interval, and that course is the one computed with nothing kept, bit for bit;
+    a caller's stamp array changed afterwards is not mistaken for the kept one, and the
+    kept arrays cannot be written. Invented record at an invented site (50° N, 8° E)."""
+    from fluxpart import solar
+
+    index = pd.date_range("2021-01-01", periods=48 * 40, freq="30min")
+    solar._SUN_CACHE[:] = [None, None]
+    fresh = solar.interval_sun(index, 8.0, 1.0, 30)
+    solar._SUN_CACHE[:] = [None, None]
+    first = solar.potential_radiation(index, 50.0, 8.0, 1.0, 30)
+    assert solar.interval_sun(index, 8.0, 1.0, 30.0) is solar._SUN_CACHE[0][2]   # asked twice
+    lagged = solar.potential_radiation(index - pd.Timedelta(minutes=5), 50.0, 8.0, 1.0, 30)
+    again = solar.interval_sun(index, 8.0, 1.0, 30.0)             # kept past the lagged one
+    assert again is solar._SUN_CACHE[0][2]
+    for got, expected in zip(again, fresh, strict=True):
+        np.testing.assert_array_equal(_bits(got), _bits(expected))
+    np.testing.assert_array_equal(_bits(solar.potential_radiation(index, 50.0, 8.0, 1.0, 30)),
+                                  _bits(first))
+    assert not np.array_equal(lagged, first)
+    with pytest.raises(ValueError):
+        again[2][0] = 0.0
+    other = solar.interval_sun(index, 9.0, 1.0, 30)                # another longitude
+    assert not np.array_equal(other[2], fresh[2])
+    stamps = index.to_numpy().astype("datetime64[s]")
+    kept = solar.interval_sun(stamps, 8.0, 1.0, 30)
+    stamps[:] += np.timedelta64(3600, "s")                         # the caller's array moved
+    moved = solar.interval_sun(stamps, 8.0, 1.0, 30)
+    assert moved is not kept and not np.array_equal(moved[2], kept[2])
+    solar._SUN_CACHE[:] = [None, None]
+    np.testing.assert_array_equal(_bits(solar.interval_sun(stamps, 8.0, 1.0, 30)[2]),
+                                  _bits(moved[2]))
