@@ -246,3 +246,31 @@ def test_the_sun_course_kept_for_the_same_stamps_is_the_course_computed_afresh()
     solar._SUN_CACHE[:] = [None, None]
     np.testing.assert_array_equal(_bits(solar.interval_sun(stamps, 8.0, 1.0, 30)[2]),
                                   _bits(moved[2]))
+
+
+@pytest.mark.parametrize("k", [0, 48, -48, 96 * 3, -17520 + 5])
+def test_tair_moved_by_days_gives_vpd_from_rh_bit_for_bit(k):
+    """`tair_days._shifted_vpd` from e_s(T) and 1 - RH/100 computed once equals
+    `variables.vpd_from_rh` of the moved air temperature (the Magnus form of Alduchov &
+    Eskridge 1996, element by element), NaN where the move leaves no value; invented
+    tair and RH with gaps and RH beyond 0-100 %."""
+    from fluxpart.tair_days import _shifted_vpd
+    from fluxpart.variables import saturation_vapour_pressure, vpd_from_rh
+
+    rng = np.random.default_rng(2)
+    n = 17520
+    tair = 10.0 + 8.0 * np.sin(np.arange(n) / 300.0) + rng.normal(0, 2, n)
+    rh = rng.uniform(-5.0, 105.0, n)
+    tair[rng.random(n) < 0.05] = np.nan
+    rh[rng.random(n) < 0.05] = np.nan
+    moved = np.full(n, np.nan)
+    if k >= 0:
+        moved[:n - k] = tair[k:]
+    else:
+        moved[-k:] = tair[:k]
+    with np.errstate(invalid="ignore"):
+        expected = vpd_from_rh(rh, moved)
+    got = _shifted_vpd(saturation_vapour_pressure(tair), 1.0 - np.clip(rh, 0.0, 100.0) / 100.0,
+                       k)
+    np.testing.assert_array_equal(_bits(got), _bits(expected))
+    assert np.isfinite(got).sum() > (1000 if abs(k) < n // 2 else 0)
