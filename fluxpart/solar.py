@@ -23,6 +23,7 @@ from .constants import SECONDS_PER_DAY, SOLAR_CONSTANT
 from .errors import ConfigError, LengthMismatchError, SpacingError, TimestampError
 
 __all__ = [
+    "forget_courses",
     "interval_midpoint_elevation",
     "interval_sun",
     "night_mask",
@@ -350,6 +351,20 @@ def interval_sun(index, longitude, utc_offset, interval_minutes=None) -> tuple:
 #: arrays, so the record's course is computed once (round speed20). A batch worker's
 #: next site replaces both.
 _SUN_CACHE: list = [None, None]
+
+
+def forget_courses() -> None:
+    """Let go of the sun courses :func:`interval_sun` keeps (up to two records' worth).
+
+    Called by the pipeline once the clock check, the last stage to ask for the record's
+    course again, is done, so that the arrays do not add to a long record's peak memory.
+    Results never depend on it: a course not kept is computed again, the same bits.
+
+    References
+    ----------
+    Michalsky, J. J. (1988). Solar Energy 40(3):227–235 (the course computed).
+    """
+    _SUN_CACHE[:] = [None, None]
 
 
 def potential_at_latitude(sun: tuple, latitude: float) -> np.ndarray:

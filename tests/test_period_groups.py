@@ -243,7 +243,8 @@ def test_the_sun_course_kept_for_the_same_stamps_is_the_course_computed_afresh()
     stamps[:] += np.timedelta64(3600, "s")                         # the caller's array moved
     moved = solar.interval_sun(stamps, 8.0, 1.0, 30)
     assert moved is not kept and not np.array_equal(moved[2], kept[2])
-    solar._SUN_CACHE[:] = [None, None]
+    solar.forget_courses()
+    assert solar._SUN_CACHE == [None, None]
     np.testing.assert_array_equal(_bits(solar.interval_sun(stamps, 8.0, 1.0, 30)[2]),
                                   _bits(moved[2]))
 
