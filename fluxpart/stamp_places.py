@@ -169,7 +169,7 @@ ZONE_ABBREVIATIONS = {
 }
 _ABBREVIATION = _LazyPattern(r"(?<![A-Za-z])([A-Z]{3,4})(?![A-Za-z])")
 _AREA_CITY = _LazyPattern(r"(?<![\w/])((?:Africa|America|Antarctica|Asia|Atlantic|Australia|"
-                        r"Europe|Indian|Pacific|Etc)/[A-Za-z_+\-0-9]+(?:/[A-Za-z_\-]+)?)")
+                          r"Europe|Indian|Pacific|Etc)/[A-Za-z_+\-0-9]+(?:/[A-Za-z_\-]+)?)")
 
 
 def zone_offset(text: str) -> float | None:
@@ -307,9 +307,9 @@ _STAMP_PLACE = _LazyPattern(
     r"|mitte)(?![a-z])")
 #: "interval begin", "period end" in a cell under the time column's name
 _CELL_PLACE = _LazyPattern(r"\b(?:interval|period|averaging|window)\s+"
-                         r"(start|beginning|begin|end|middle|centre|center|midpoint)\b"
-                         r"|\((start|beginning|begin|end|middle|centre|center|midpoint)\)"
-                         r"|^\s*(start|beginning|begin|end|middle|centre|center|midpoint)\s*$")
+                           r"(start|beginning|begin|end|middle|centre|center|midpoint)\b"
+                           r"|\((start|beginning|begin|end|middle|centre|center|midpoint)\)"
+                           r"|^\s*(start|beginning|begin|end|middle|centre|center|midpoint)\s*$")
 #: A clock right after a word for the stamps ("Timestamps (UTC)", "Timestamps are UTC",
 #: "All data in UTC", "Date/time: UTC", "Local time = UTC+2"): no digits between, so a
 #: date written before a clock ("Exported 2021-06-01 12:00 UTC") is not one
@@ -324,12 +324,12 @@ _STAMPS_CLOCK = _LazyPattern(
 #: brackets after the key ("UTC offset (h): 2", "UTC offset [min]: 60") gives the unit of
 #: a bare number.
 _ZONE_KEY = _LazyPattern(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt[\s_-]*offset"
-                       r"|offset\s+(?:from|to)\s+(?:utc|gmt)|fuseau\s+horaire"
-                       r"|zona\s+horaria|huso\s+horario|fuso\s+orario|fuso\s+hor[aá]rio"
-                       r"|tijd\s*s?zone|strefa\s+czasowa|tidszon|tidssone)"
-                       r"(?:\s*[\(\[](?:utc|gmt)[\s_-]*offset[\)\]])?"   # "Time zone (UTC offset)"
-                       r"(?:\s*[\(\[](?P<unit>h|hrs?|hours?|min|mins|minutes?)[\)\]])?"
-                       r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*(?P<value>[^,;]*)")
+                         r"|offset\s+(?:from|to)\s+(?:utc|gmt)|fuseau\s+horaire"
+                         r"|zona\s+horaria|huso\s+horario|fuso\s+orario|fuso\s+hor[aá]rio"
+                         r"|tijd\s*s?zone|strefa\s+czasowa|tidszon|tidssone)"
+                         r"(?:\s*[\(\[](?:utc|gmt)[\s_-]*offset[\)\]])?"   # "Time zone (UTC offset)"
+                         r"(?:\s*[\(\[](?P<unit>h|hrs?|hours?|min|mins|minutes?)[\)\]])?"
+                         r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*(?P<value>[^,;]*)")
 #: "Time offset: +1 h" (a key read only with a unit or a sign and "UTC": "time offset:
 #: 0.2" may be a sensor's lag)
 _TIME_OFFSET_KEY = _LazyPattern(r"\btime[\s_-]*offset\s*[:=]\s*(?P<value>[^,;]*)")
@@ -342,19 +342,19 @@ _NUMBER_UNIT = _LazyPattern(r"([+-]?\d{1,3}(?:\.\d+)?)\s*(h|hrs?|hours?|min|mins
 #: and aviation letter Z ("Zulu") of UTC (ISO 8601 writes UTC as Z (m)), or Universal
 #: Time (UT, French TU), within a second of UTC (m), with an optional ISO 8601 offset
 _CLOCK_VALUE = _LazyPattern(r"(?:utc|gmt|gps|z|zulu|ut|tu|universal)(?:\s*time)?"
-                          r"(?:\s*\((?:utc|gmt|gps)\))?"
-                          r"(?P<offset>\s*[+-]\s*\d{1,2}(?::?\d{2})?)?")
+                            r"(?:\s*\((?:utc|gmt|gps)\))?"
+                            r"(?P<offset>\s*[+-]\s*\d{1,2}(?::?\d{2})?)?")
 #: "Data logger time: UTC", "Time: UTC+00:00", "Standard time: UTC": a key ending in
 #: "time" followed by a clock and nothing else (since layouts27; a date or anything else
 #: after the key states nothing: "Export time: 2021-06-01 12:00 UTC")
 _TIME_KEY = _LazyPattern(r"\btime\s*[\]\)]?\s*[:=]\s*\(?\s*(?P<value>[^,;]*)")
 _IN_UTC = _LazyPattern(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|zeitangaben"
-                     r"|zeiten|uhrzeiten|horodatage|heures?)\b[^.;]{0,24}?"
-                     r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+                       r"|zeiten|uhrzeiten|horodatage|heures?)\b[^.;]{0,24}?"
+                       r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
 #: "Time reference: UTC", "Timebase: UTC", "Time standard = GMT" (a clock or zone follows;
 #: bare numbers are not read, since "time base: 10" may be a sampling rate)
 _REFERENCE_KEY = _LazyPattern(r"(?:\btime[\s_-]*(?:reference|base|standard)|\btimebase"
-                            r"|\bzeitbasis|\bzeitreferenz)\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
+                              r"|\bzeitbasis|\bzeitreferenz)\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
 #: Zones written out in words, as logger software, Windows (its zone identifiers, "W.
 #: Europe Standard Time" for Berlin) and data documentation write them [h]; the longer
 #: phrase first, so "Australian Eastern Standard Time" is not read as US Eastern.
@@ -389,10 +389,10 @@ _SPELLED_ZONES = (
     ("zulu time", 0.0),
 )
 _SPELLED = _LazyPattern(r"(?<![a-z])(" + "|".join(re.escape(p) for p, _ in _SPELLED_ZONES)
-                      + r")(?![a-z])")
+                        + r")(?![a-z])")
 #: Words for the stamps or the clock beside a zone written out on a line without a key
 _ABOUT_STAMPS = _LazyPattern(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|"
-                           r"zeit|zeiten|zeitstempel|uhrzeit)\b")
+                             r"zeit|zeiten|zeitstempel|uhrzeit)\b")
 #: "Logger clock: EST", "clock = UTC+1" (a colon or equals sign: "clock synchronised to
 #: UTC" names the clock only in passing, not the stamps')
 _CLOCK_KEY = _LazyPattern(r"\bclock\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
