@@ -57,6 +57,7 @@ import math
 import numpy as np
 import pandas as pd
 
+from ._groups import group_positions
 from .uncertainty import gap_runs
 from .variables import saturation_vapour_pressure, vpd_from_rh
 
@@ -896,9 +897,9 @@ def _clear_responses(d_nee, d_rg, usable, codes) -> tuple[list, list]:
     """The periods (`codes`) whose sunlit NEE changes correlate clearly positively and
     clearly negatively with those of Rg: lists of (code, correlation)."""
     rising, falling = [], []
-    for code in np.unique(codes[usable]):
-        chosen = usable & (codes == code)
-        count = int(chosen.sum())
+    # each period's pairs in time order by one sort, not one pass per period (_groups)
+    for code, chosen in group_positions(codes, usable).items():
+        count = int(chosen.size)
         if count < _MONTH_PAIRS:
             continue
         r, _ = _correlation(d_nee[chosen], d_rg[chosen], _MONTH_PAIRS)
@@ -945,14 +946,16 @@ def _zero_bins(nee: np.ndarray, stamps) -> np.ndarray:
                + pd.DatetimeIndex(stamps).month.to_numpy()))
     steps = np.diff(nee)
     same = (months[1:] == months[:-1]) & np.isfinite(steps)
-    for month in np.unique(months):
-        chosen = same & (months[1:] == month)
-        if int(chosen.sum()) < 2:
+    # each month's records and steps in time order by one sort each (_groups)
+    steps_of = group_positions(months[1:], same)
+    for month, records in group_positions(months).items():
+        chosen = steps_of.get(month)
+        if chosen is None or chosen.size < 2:
             continue
         values = steps[chosen]
         sigma = 1.4826 * float(np.median(np.abs(values - np.median(values)))) / math.sqrt(2.0)
         scale = sigma / math.sqrt(2.0)                 # the Laplace scale b
-        bins[months == month] = min(_CENSOR_BIN, _CENSOR_BIN / 0.2 * scale)
+        bins[records] = min(_CENSOR_BIN, _CENSOR_BIN / 0.2 * scale)
     return bins
 
 
@@ -2695,12 +2698,15 @@ def _sun_heated_months(difference, sunlit, dark, stamps, names) -> str | None:
     if stamps is None or len(stamps) != difference.size:
         return None
     months = pd.DatetimeIndex(stamps).to_period("M")
+    # each month's sunlit and dark records in time order by one sort each (_groups)
+    sunlit_of = group_positions(months.asi8, sunlit)
+    dark_of = group_positions(months.asi8, dark)
+    nothing = np.zeros(0, dtype=np.intp)
     found = []
     for month in months.unique():
-        here = np.asarray(months == month)
-        day_set, dark_set = sunlit & here, dark & here
-        if (int(day_set.sum()) < _SUNLIT_MONTH_RECORDS
-                or int(dark_set.sum()) < _SUNLIT_MONTH_RECORDS):
+        day_set = sunlit_of.get(month.ordinal, nothing)
+        dark_set = dark_of.get(month.ordinal, nothing)
+        if day_set.size < _SUNLIT_MONTH_RECORDS or dark_set.size < _SUNLIT_MONTH_RECORDS:
             continue
         excess = float(np.median(difference[day_set]) - np.median(difference[dark_set]))
         if excess >= _SUNLIT_EXCESS:

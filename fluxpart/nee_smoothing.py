@@ -117,32 +117,42 @@ def smoothed_nee(nee, is_night, columns=None, stamps=None) -> str | None:
     if x.size < 3 or night.shape != x.shape:
         return None
     column = (columns or {}).get("nee", "nee")
-    whole = _pair_correlation(x, night, _MIN_PAIRS)
+    change, usable, pair = _changes(x, night)
+    whole = _part_correlation(change, usable, pair, _MIN_PAIRS)
     if whole is not None and whole[0] >= SMOOTHED_CORRELATION:
         return _message(column, whole[0], whole[1], "")
     if stamps is None or len(stamps) != x.size:
         return None
     months = pd.DatetimeIndex(stamps).to_period("M")
     firsts = np.flatnonzero(months[1:] != months[:-1]) + 1
+    # the changes and their pairs of the whole record, sliced for each part (the part's
+    # own np.diff is the same slice of the whole's), and the pairs counted by a running
+    # sum, so a part of too few pairs costs nothing (a record of n months has 2n parts)
+    counted = np.concatenate(([0], np.cumsum(pair)))
     for first in firsts:
-        for part, where in (((0, first), f"until {months[first - 1]}"),
-                            ((first, x.size), f"from {months[first]}")):
-            found = _pair_correlation(x[part[0]:part[1]], night[part[0]:part[1]],
-                                      _PART_MIN_PAIRS)
+        for (start, end), where in (((0, first), f"until {months[first - 1]}"),
+                                    ((first, x.size), f"from {months[first]}")):
+            if end - start < 3 or counted[end - 2] - counted[start] < _PART_MIN_PAIRS:
+                continue
+            found = _part_correlation(change[start:end - 1], usable[start:end - 1],
+                                      pair[start:end - 2], _PART_MIN_PAIRS)
             if found is not None and found[0] >= _PART_CORRELATION:
                 return _message(column, found[0], found[1], f" {where}")
     return None
 
 
-def _pair_correlation(x, night, minimum):
-    """(correlation, pairs) of consecutive night changes of `x`, or None where fewer
-    than `minimum` pairs, too many zero changes or no spread."""
-    if x.size < 3:
-        return None
+def _changes(x, night):
+    """Consecutive changes of `x`, those between two finite night records (`usable`)
+    and the consecutive pairs of usable changes (`pair`)."""
     change = np.diff(x)
     usable = night[1:] & night[:-1] & np.isfinite(change)
+    return change, usable, usable[:-1] & usable[1:]
+
+
+def _part_correlation(change, usable, pair, minimum):
+    """(correlation, pairs) of consecutive night changes (from :func:`_changes`), or None
+    where fewer than `minimum` pairs, too many zero changes or no spread."""
     first, second = change[:-1], change[1:]
-    pair = usable[:-1] & usable[1:]
     if int(pair.sum()) < minimum:
         return None
     changes = change[usable]

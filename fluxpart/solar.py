@@ -23,6 +23,7 @@ from .constants import SECONDS_PER_DAY, SOLAR_CONSTANT
 from .errors import ConfigError, LengthMismatchError, SpacingError, TimestampError
 
 __all__ = [
+    "forget_courses",
     "interval_midpoint_elevation",
     "interval_sun",
     "night_mask",
@@ -316,17 +317,54 @@ def interval_sun(index, longitude, utc_offset, interval_minutes=None) -> tuple:
     the hour angles at its start (in [-π, π)) and end [rad], and the hour-angle span of
     an interval [rad]; for :func:`potential_at_latitude`, which gives
     :func:`potential_radiation` at any latitude from them (a scan over latitudes
-    computes the sun's position once).
+    computes the sun's position once). The arrays are read-only: the last course
+    computed is kept and returned again for the same stamps, position and interval.
     """
     minutes = _interval_minutes(index, interval_minutes)
     instants = _as_datetime64(index, "index")
+    key = (float(longitude), float(utc_offset), float(minutes))
+    kept, last = _SUN_CACHE                 # one read each: another thread may replace them
+    for entry in (kept, last):
+        if entry is not None and entry[0] == key and np.array_equal(entry[1], instants):
+            if entry is last:
+                _SUN_CACHE[0] = last        # asked for twice: kept past one-off courses
+            return entry[2]
     start = _utc_seconds(instants, utc_offset)
     middle = start + minutes * 30.0
     declination, h_middle, eccentricity = _solar_coordinates(middle, longitude)
     span = 2.0 * np.pi * minutes / _MINUTES_PER_DAY
     h1 = np.mod(h_middle - 0.5 * span + np.pi, 2.0 * np.pi) - np.pi   # in [-π, π)
     h2 = h1 + span                                            # below 3π
-    return np.sin(declination), np.cos(declination), h1, h2, span, eccentricity
+    sun = (np.sin(declination), np.cos(declination), h1, h2, span, eccentricity)
+    for values in (*sun[:4], sun[5]):
+        values.flags.writeable = False             # shared by the calls the cache serves
+    _SUN_CACHE[1] = (key, instants.copy(), sun)   # a copy: the caller's array may change
+    return sun
+
+
+#: Courses of :func:`interval_sun` kept for the calls that ask again: ``[kept, last]``,
+#: each None or ``((longitude, utc_offset, minutes), stamps, sun)``; ``last`` the latest
+#: computed, ``kept`` the latest asked for twice. A run asks for the sun's course over its
+#: record four times (the reader's and the screening's potential radiation, the clock
+#: check's flipped latitude and its latitude scan) and over the record moved by each of
+#: the clock check's lags once; the same stamps, position and interval give the same
+#: arrays, so the record's course is computed once (round speed20). A batch worker's
+#: next site replaces both.
+_SUN_CACHE: list = [None, None]
+
+
+def forget_courses() -> None:
+    """Let go of the sun courses :func:`interval_sun` keeps (up to two records' worth).
+
+    Called by the pipeline once the clock check, the last stage to ask for the record's
+    course again, is done, so that the arrays do not add to a long record's peak memory.
+    Results never depend on it: a course not kept is computed again, the same bits.
+
+    References
+    ----------
+    Michalsky, J. J. (1988). Solar Energy 40(3):227–235 (the course computed).
+    """
+    _SUN_CACHE[:] = [None, None]
 
 
 def potential_at_latitude(sun: tuple, latitude: float) -> np.ndarray:

@@ -41,6 +41,29 @@ __all__ = ["ZONE_ABBREVIATIONS", "column_place", "column_utc_offset", "half_inte
            "spelled_zone_offset", "stated_civil", "stated_offset", "stated_place",
            "text_conflict_message", "zone_offset"]
 
+
+class _LazyPattern:
+    """A regular expression compiled where it is first used, not at import.
+
+    Most files use three or four of this module's two dozen patterns (the others read
+    the lines above a header and the cells of a units line), and compiling them all
+    took ~10 ms of every command's start-up (round speed20). Attribute access
+    (``search``, ``finditer``, ...) goes to the compiled pattern, the same object
+    ``re.compile`` returns.
+    """
+
+    __slots__ = ("_arguments", "_compiled")
+
+    def __init__(self, *arguments):
+        self._arguments = arguments
+        self._compiled = None
+
+    def __getattr__(self, name):
+        if self._compiled is None:
+            self._compiled = re.compile(*self._arguments)
+        return getattr(self._compiled, name)
+
+
 #: Words of a time column's name that say where its stamps sit in the interval (English,
 #: with the German words loggers of German-speaking networks write; common practice).
 _PLACE_WORDS = {
@@ -55,7 +78,7 @@ _PLACE_WORDS = {
 #: Words a place word is written together with in one token ("endtime", "timestart")
 _TIME_WORDS = ("timestamp", "datetime", "stamp", "time", "date", "ts")
 #: (not the zone names "Etc/GMT-1", whose POSIX sign is the other way round: UTC+1)
-_UTC = re.compile(r"(?<![a-z])(?<!etc/)(utc|gmt)(?:([+-])(\d{1,2})(?::?(\d{2}))?)?(?![a-z0-9])")
+_UTC = _LazyPattern(r"(?<![a-z])(?<!etc/)(utc|gmt)(?:([+-])(\d{1,2})(?::?(\d{2}))?)?(?![a-z0-9])")
 
 
 def _tokens(name: str) -> list[str]:
@@ -144,9 +167,9 @@ ZONE_ABBREVIATIONS = {
     "AEST": 10.0, "AEDT": 11.0, "ACST": 9.5, "ACDT": 10.5, "AWST": 8.0,
     "NZST": 12.0, "NZDT": 13.0, "SAST": 2.0,
 }
-_ABBREVIATION = re.compile(r"(?<![A-Za-z])([A-Z]{3,4})(?![A-Za-z])")
-_AREA_CITY = re.compile(r"(?<![\w/])((?:Africa|America|Antarctica|Asia|Atlantic|Australia|"
-                        r"Europe|Indian|Pacific|Etc)/[A-Za-z_+\-0-9]+(?:/[A-Za-z_\-]+)?)")
+_ABBREVIATION = _LazyPattern(r"(?<![A-Za-z])([A-Z]{3,4})(?![A-Za-z])")
+_AREA_CITY = _LazyPattern(r"(?<![\w/])((?:Africa|America|Antarctica|Asia|Atlantic|Australia|"
+                          r"Europe|Indian|Pacific|Etc)/[A-Za-z_+\-0-9]+(?:/[A-Za-z_\-]+)?)")
 
 
 def zone_offset(text: str) -> float | None:
@@ -220,13 +243,13 @@ def _hours(offset: float) -> str:
     return f"UTC{offset:+g}" if offset else "UTC"
 
 
-_STATED_PLACE = re.compile(
+_STATED_PLACE = _LazyPattern(
     r"\b(start|beginning|begin|end|middle|centre|center|mid-?point)\s+of\s+(?:the\s+|each\s+)?"
     r"(?:averaging\s+|measurement\s+|sampling\s+|logging\s+|record(?:ing)?\s+)?"
     r"(?:interval|period|window)")
 #: German statements of the place (common practice of German-speaking networks):
 #: "Intervallanfang", "Ende des Mittelungsintervalls"
-_GERMAN_PLACE = re.compile(
+_GERMAN_PLACE = _LazyPattern(
     r"\b(?:mittelungs|mess)?intervall(anfang|beginn|ende|mitte)\b"
     r"|\b(anfang|beginn|ende|mitte)\s+des\s+(?:mittelungs|mess)?(?:zeit)?"
     r"(?:intervall|zeitraum)e?s\b")
@@ -234,7 +257,7 @@ _GERMAN_PLACE = re.compile(
 #: Spanish, Italian: "Horodatage en fin de période", "inicio del intervalo", "fine del
 #: periodo di media"; common practice, since layouts27); not where a colon and a number
 #: follow ("fin de la période : 2021-12-31" dates the record)
-_ROMANCE_PLACE = re.compile(
+_ROMANCE_PLACE = _LazyPattern(
     r"(?:\b(début|debut|fin|milieu|centre)\s+(?:de\s+(?:la\s+|l')?|du\s+)"
     r"(?:période|periode|intervalle)\b"
     r"|\b(inicio|comienzo|principio|final|fin|mitad|medio)\s+del\s+(?:periodo|período|intervalo)\b"
@@ -243,7 +266,7 @@ _ROMANCE_PLACE = re.compile(
 #: Averages over the interval after or before the stamp ("Values are averages over
 #: the following 30 minutes": the stamp starts the interval; "Mittelwerte der
 #: vorangegangenen 30 Minuten": it ends it) (common practice, since layouts27)
-_RELATIVE_PLACE = re.compile(
+_RELATIVE_PLACE = _LazyPattern(
     r"\b(?:averages?|averaged|means?|mean\s+values?|values?|totals?|sums?)\s+"
     r"(?:over|of|for|across)\s+(?:the\s+)?"
     r"(following|next|subsequent|preceding|previous)\s+"
@@ -253,7 +276,7 @@ _RELATIVE_PLACE = re.compile(
 #: "Period-ending timestamps", "the period ending at the time shown" (since layouts27;
 #: "Calibration period ending 2021-05-01" states nothing: no word for the stamps or
 #: the time follows)
-_ENDING_AT = re.compile(
+_ENDING_AT = _LazyPattern(
     r"\b(?:period|interval)[\s-]+(beginning|starting|ending|begin|start|end)\s+"
     r"(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?|labels?|times?)\b"
     r"|\b(?:period|interval)\s+(beginning|starting|ending)\s+(?:at|with)\s+"
@@ -278,19 +301,19 @@ _OTHER_PLACE_WORDS = {
 }
 #: A place word within a few words after a word for the stamps, in one clause
 #: ("Timestamp at start of each 30-min average", "Time label: interval start")
-_STAMP_PLACE = re.compile(
+_STAMP_PLACE = _LazyPattern(
     r"\b(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?|zeitstempel)\b[^.;]{0,30}?"
     r"(?<![a-z])(start|beginning|begin|end|middle|centre|center|midpoint|anfang|beginn|ende"
     r"|mitte)(?![a-z])")
 #: "interval begin", "period end" in a cell under the time column's name
-_CELL_PLACE = re.compile(r"\b(?:interval|period|averaging|window)\s+"
-                         r"(start|beginning|begin|end|middle|centre|center|midpoint)\b"
-                         r"|\((start|beginning|begin|end|middle|centre|center|midpoint)\)"
-                         r"|^\s*(start|beginning|begin|end|middle|centre|center|midpoint)\s*$")
+_CELL_PLACE = _LazyPattern(r"\b(?:interval|period|averaging|window)\s+"
+                           r"(start|beginning|begin|end|middle|centre|center|midpoint)\b"
+                           r"|\((start|beginning|begin|end|middle|centre|center|midpoint)\)"
+                           r"|^\s*(start|beginning|begin|end|middle|centre|center|midpoint)\s*$")
 #: A clock right after a word for the stamps ("Timestamps (UTC)", "Timestamps are UTC",
 #: "All data in UTC", "Date/time: UTC", "Local time = UTC+2"): no digits between, so a
 #: date written before a clock ("Exported 2021-06-01 12:00 UTC") is not one
-_STAMPS_CLOCK = re.compile(
+_STAMPS_CLOCK = _LazyPattern(
     r"\b(?:time\s*stamps?|timestamps?|stamps?|date\s*/\s*time|date\s*time|datetime|"
     r"local\s+time|all\s+data|all\s+times|times|zeitstempel|horodatage)\b[^0-9.;]{0,15}?"
     r"(?<![a-z])(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
@@ -300,38 +323,38 @@ _STAMPS_CLOCK = re.compile(
 #: since layouts27: "Fuseau horaire : UTC" was read as local standard time); a unit in
 #: brackets after the key ("UTC offset (h): 2", "UTC offset [min]: 60") gives the unit of
 #: a bare number.
-_ZONE_KEY = re.compile(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt[\s_-]*offset"
-                       r"|offset\s+(?:from|to)\s+(?:utc|gmt)|fuseau\s+horaire"
-                       r"|zona\s+horaria|huso\s+horario|fuso\s+orario|fuso\s+hor[aá]rio"
-                       r"|tijd\s*s?zone|strefa\s+czasowa|tidszon|tidssone)"
-                       r"(?:\s*[\(\[](?:utc|gmt)[\s_-]*offset[\)\]])?"   # "Time zone (UTC offset)"
-                       r"(?:\s*[\(\[](?P<unit>h|hrs?|hours?|min|mins|minutes?)[\)\]])?"
-                       r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*(?P<value>[^,;]*)")
+_ZONE_KEY = _LazyPattern(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt[\s_-]*offset"
+                         r"|offset\s+(?:from|to)\s+(?:utc|gmt)|fuseau\s+horaire"
+                         r"|zona\s+horaria|huso\s+horario|fuso\s+orario|fuso\s+hor[aá]rio"
+                         r"|tijd\s*s?zone|strefa\s+czasowa|tidszon|tidssone)"
+                         r"(?:\s*[\(\[](?:utc|gmt)[\s_-]*offset[\)\]])?"   # "Time zone (UTC offset)"
+                         r"(?:\s*[\(\[](?P<unit>h|hrs?|hours?|min|mins|minutes?)[\)\]])?"
+                         r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*(?P<value>[^,;]*)")
 #: "Time offset: +1 h" (a key read only with a unit or a sign and "UTC": "time offset:
 #: 0.2" may be a sensor's lag)
-_TIME_OFFSET_KEY = re.compile(r"\btime[\s_-]*offset\s*[:=]\s*(?P<value>[^,;]*)")
+_TIME_OFFSET_KEY = _LazyPattern(r"\btime[\s_-]*offset\s*[:=]\s*(?P<value>[^,;]*)")
 #: A number of hours, or of hours or minutes with its unit ("1", "+1 h", "60 min"), as
 #: written after an offset key
-_NUMBER_UNIT = re.compile(r"([+-]?\d{1,3}(?:\.\d+)?)\s*(h|hrs?|hours?|min|mins|minutes?)?")
+_NUMBER_UNIT = _LazyPattern(r"([+-]?\d{1,3}(?:\.\d+)?)\s*(h|hrs?|hours?|min|mins|minutes?)?")
 #: The whole value after a key being one clock: UTC, GMT, GPS time (which loggers
 #: synchronised by a GPS receiver keep: UTC plus the leap seconds since 1980, 18 s since
 #: 2017, IS-GPS-200 (m), within the reader's rounding to whole minutes) or the military
 #: and aviation letter Z ("Zulu") of UTC (ISO 8601 writes UTC as Z (m)), or Universal
 #: Time (UT, French TU), within a second of UTC (m), with an optional ISO 8601 offset
-_CLOCK_VALUE = re.compile(r"(?:utc|gmt|gps|z|zulu|ut|tu|universal)(?:\s*time)?"
-                          r"(?:\s*\((?:utc|gmt|gps)\))?"
-                          r"(?P<offset>\s*[+-]\s*\d{1,2}(?::?\d{2})?)?")
+_CLOCK_VALUE = _LazyPattern(r"(?:utc|gmt|gps|z|zulu|ut|tu|universal)(?:\s*time)?"
+                            r"(?:\s*\((?:utc|gmt|gps)\))?"
+                            r"(?P<offset>\s*[+-]\s*\d{1,2}(?::?\d{2})?)?")
 #: "Data logger time: UTC", "Time: UTC+00:00", "Standard time: UTC": a key ending in
 #: "time" followed by a clock and nothing else (since layouts27; a date or anything else
 #: after the key states nothing: "Export time: 2021-06-01 12:00 UTC")
-_TIME_KEY = re.compile(r"\btime\s*[\]\)]?\s*[:=]\s*\(?\s*(?P<value>[^,;]*)")
-_IN_UTC = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|zeitangaben"
-                     r"|zeiten|uhrzeiten|horodatage|heures?)\b[^.;]{0,24}?"
-                     r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+_TIME_KEY = _LazyPattern(r"\btime\s*[\]\)]?\s*[:=]\s*\(?\s*(?P<value>[^,;]*)")
+_IN_UTC = _LazyPattern(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|zeitangaben"
+                       r"|zeiten|uhrzeiten|horodatage|heures?)\b[^.;]{0,24}?"
+                       r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
 #: "Time reference: UTC", "Timebase: UTC", "Time standard = GMT" (a clock or zone follows;
 #: bare numbers are not read, since "time base: 10" may be a sampling rate)
-_REFERENCE_KEY = re.compile(r"(?:\btime[\s_-]*(?:reference|base|standard)|\btimebase"
-                            r"|\bzeitbasis|\bzeitreferenz)\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
+_REFERENCE_KEY = _LazyPattern(r"(?:\btime[\s_-]*(?:reference|base|standard)|\btimebase"
+                              r"|\bzeitbasis|\bzeitreferenz)\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
 #: Zones written out in words, as logger software, Windows (its zone identifiers, "W.
 #: Europe Standard Time" for Berlin) and data documentation write them [h]; the longer
 #: phrase first, so "Australian Eastern Standard Time" is not read as US Eastern.
@@ -365,15 +388,15 @@ _SPELLED_ZONES = (
     ("new zealand standard time", 12.0), ("south africa standard time", 2.0),
     ("zulu time", 0.0),
 )
-_SPELLED = re.compile(r"(?<![a-z])(" + "|".join(re.escape(p) for p, _ in _SPELLED_ZONES)
-                      + r")(?![a-z])")
+_SPELLED = _LazyPattern(r"(?<![a-z])(" + "|".join(re.escape(p) for p, _ in _SPELLED_ZONES)
+                        + r")(?![a-z])")
 #: Words for the stamps or the clock beside a zone written out on a line without a key
-_ABOUT_STAMPS = re.compile(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|"
-                           r"zeit|zeiten|zeitstempel|uhrzeit)\b")
+_ABOUT_STAMPS = _LazyPattern(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|"
+                             r"zeit|zeiten|zeitstempel|uhrzeit)\b")
 #: "Logger clock: EST", "clock = UTC+1" (a colon or equals sign: "clock synchronised to
 #: UTC" names the clock only in passing, not the stamps')
-_CLOCK_KEY = re.compile(r"\bclock\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
-_BARE_OFFSET = re.compile(r"^([+-])(\d{1,2})(?::?(\d{2}))?$")
+_CLOCK_KEY = _LazyPattern(r"\bclock\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
+_BARE_OFFSET = _LazyPattern(r"^([+-])(\d{1,2})(?::?(\d{2}))?$")
 
 
 def stated_place(text: str, cell: bool = False) -> str | None:
@@ -428,7 +451,7 @@ def stated_place(text: str, cell: bool = False) -> str | None:
 #: (comment marks, quotes, empty cells and a closing full stop aside). A sentence that uses the words
 #: in passing ("NEE before the campaign period start was removed", "Calibration period
 #: end") states no place of the stamps (round review31).
-_LINE_PLACE = re.compile(
+_LINE_PLACE = _LazyPattern(
     r"(?:(?:(?:time|times|time\s*stamps?|timestamps?|stamps?|date\s*/\s*time|datetime)"
     r"(?:\s+(?:convention|reference|label|labels|mark|marks|position|place))?"
     r"|convention)\s*[:=]\s*"
@@ -584,7 +607,7 @@ def _number_offset(value: str, unit: str | None, unit_needed: bool = False) -> f
 #: practice) followed by an answer that it is kept, or preceded by "with"
 _SUMMER_WORDS = (r"(?:daylight[\s-]*sav(?:ing|ings)?(?:[\s-]*time)?|\bdst\b|sommerzeit"
                  r"|summer[\s-]*time|heure\s+d'été|horario\s+de\s+verano|ora\s+legale)")
-_SUMMER_KEPT = re.compile(
+_SUMMER_KEPT = _LazyPattern(
     _SUMMER_WORDS + r"\s*[\]\)]?\s*[:=]\s*\(?\s*(?:yes|on|ja|true|1|oui|sí|si|enabled|"
     r"active|aktiv|applied|used)\b"
     r"|\bwith\s+" + _SUMMER_WORDS + r"|\bmit\s+sommerzeit")

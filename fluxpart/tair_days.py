@@ -22,7 +22,7 @@ from __future__ import annotations
 import numpy as np
 
 from .column_faults import _MAX_SHIFT_DAYS, _correlation, _decide
-from .variables import vpd_from_rh
+from .variables import saturation_vapour_pressure
 
 __all__ = ["MIN_CORRELATION", "tair_day_shift"]
 
@@ -77,19 +77,17 @@ def tair_day_shift(tair, rh, vpd, interval_minutes: float, columns=None) -> str 
         return None
     per_day = int(round(1440.0 / interval_minutes))
     d_vpd = np.diff(vpd)
+    # e_s(T) and 1 - RH/100 once (vpd_from_rh's two factors, element by element): each
+    # shift moves e_s(T) as it would move T, so the product is vpd_from_rh's bit for bit
+    with np.errstate(invalid="ignore", over="ignore"):
+        saturation = saturation_vapour_pressure(tair)
+    dryness = 1.0 - np.clip(rh, 0.0, 100.0) / 100.0
     scores = {}
     for days in range(-_MAX_SHIFT_DAYS, _MAX_SHIFT_DAYS + 1):
         k = days * per_day
         if abs(k) >= tair.size - 1:
             continue
-        shifted = np.full(tair.size, np.nan)
-        if k >= 0:
-            shifted[:tair.size - k] = tair[k:]
-        else:
-            shifted[-k:] = tair[:k]
-        with np.errstate(invalid="ignore", over="ignore"):
-            implied = vpd_from_rh(rh, shifted)
-        scores[days] = _correlation(np.diff(implied), d_vpd)
+        scores[days] = _correlation(np.diff(_shifted_vpd(saturation, dryness, k)), d_vpd)
     scores = {days: score for days, score in scores.items() if np.isfinite(score[0])}
     if 0 not in scores or len(scores) < 2:
         return None
@@ -107,3 +105,15 @@ def tair_day_shift(tair, rh, vpd, interval_minutes: float, columns=None) -> str 
             f"column looks {abs(best)} day(s) away from the humidity columns (a file "
             "joined by a day of year counted differently); align the columns in a copy "
             "of the file")
+
+
+def _shifted_vpd(saturation, dryness, k):
+    """``vpd_from_rh(rh, tair moved by k records)`` (NaN where the move leaves no value)
+    from ``saturation = saturation_vapour_pressure(tair)`` and ``dryness = 1 - clip(rh,
+    0, 100) / 100`` [hPa]."""
+    shifted = np.full(saturation.size, np.nan)
+    if k >= 0:
+        shifted[:saturation.size - k] = saturation[k:]
+    else:
+        shifted[-k:] = saturation[:k]
+    return shifted * dryness
