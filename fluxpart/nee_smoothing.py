@@ -141,6 +141,14 @@ def smoothed_nee(nee, is_night, columns=None, stamps=None) -> str | None:
     return None
 
 
+def _pair_correlation(x, night, minimum):
+    """(correlation, pairs) of consecutive night changes of `x`, or None where `x` holds
+    fewer than 3 records (see :func:`_part_correlation`)."""
+    if x.size < 3:
+        return None
+    return _part_correlation(*_changes(x, night), minimum)
+
+
 def _changes(x, night):
     """Consecutive changes of `x`, those between two finite night records (`usable`)
     and the consecutive pairs of usable changes (`pair`)."""
@@ -161,7 +169,7 @@ def _part_correlation(change, usable, pair, minimum):
     # a change of exactly 0 is a value repeated, not measured (round mistakes29): a mean
     # that skips blanks repeats itself at the edges of a run of records, and those pairs
     # say nothing of the errors neighbours share
-    pair &= (first != 0.0) & (second != 0.0)
+    pair = pair & (first != 0.0) & (second != 0.0)      # a new array: `pair` may be a view
     if int(pair.sum()) < minimum:
         return None
     a, b = first[pair], second[pair]

@@ -177,3 +177,29 @@ def test_the_length_of_a_running_mean_is_read_from_its_night_changes():
     short[:60] = True
     three = pd.Series(noise).rolling(3, center=True, min_periods=3).mean().to_numpy()
     assert running_mean_length(three, short) is None
+
+
+def test_the_parts_see_the_same_pairs_as_a_part_computed_on_its_own():
+    """Merge check (session 43): the parts slice the whole record's pair mask, so the
+    test of one part must not change the mask the next part reads. Each part's
+    correlation equals the one computed from the part's own records (Pearson's r of
+    consecutive night changes; numpy's corrcoef as the reference) whatever was tested
+    before it. Invented records: independent errors with runs of repeated values."""
+    from fluxpart.nee_smoothing import _changes, _pair_correlation, _part_correlation
+
+    rng = np.random.default_rng(7)
+    x = rng.normal(0.0, 1.0, 4000)
+    x[1000:1200] = np.repeat(x[1000:1200:4], 4)          # repeated values: zero changes
+    night = np.ones(x.size, dtype=bool)
+    change, usable, pair = _changes(x, night)
+    before = pair.copy()
+    _part_correlation(change, usable, pair, 100)
+    assert np.array_equal(pair, before)
+    for start, end in ((0, 1500), (1500, 4000), (900, 1300)):
+        sliced = _part_correlation(change[start:end - 1], usable[start:end - 1],
+                                   pair[start:end - 2], 100)
+        own = _pair_correlation(x[start:end], night[start:end], 100)
+        assert sliced == own
+    d = np.diff(x[1500:4000])
+    r = np.corrcoef(d[:-1], d[1:])[0, 1]
+    assert _pair_correlation(x[1500:4000], night[1500:4000], 100)[0] == pytest.approx(r, abs=0.02)
