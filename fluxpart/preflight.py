@@ -52,6 +52,9 @@ earlier or later (files of other dates)
 months whose NEE rises with light beside  input (nee sign)                    no
 months whose NEE falls with it (or weeks
 where no month does)
+NEE negated by day only: nights a        input (nee day sign)                no
+release, warm bright records a long
+release tail, no month falling with light
 NEE on straight lines over runs of        input (nee filled)                  no
 records (gaps filled by interpolation)
 night NEE changing as a running mean's    input (nee smoothed)                no
@@ -92,7 +95,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from . import nee_smoothing, night_uptake, rg_dim, rg_zeros, solar, tair_days
+from . import day_sign, nee_smoothing, night_uptake, rg_dim, rg_zeros, solar, tair_days
 from .column_faults import (
     PLACEHOLDER_VARIABLES,
     censored_nee,
@@ -426,6 +429,13 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                         screened.index, names)
         if text:
             findings.append(Finding("input (nee sign)", text, False))
+        elif "tair" in screened.columns:
+            # negated by day only: nights a release, no month falling with light (mistakes30)
+            text = day_sign.day_sign_reversed(
+                screened["nee"].to_numpy(dtype=float), screened["rg"].to_numpy(dtype=float),
+                screened["tair"].to_numpy(dtype=float), potential, screened.index, names)
+            if text:
+                findings.append(Finding(day_sign.STAGE, text, False))
     if "rg" in screened.columns and potential is not None:
         text = shaded_rg(screened["rg"].to_numpy(dtype=float), potential, screened.index,
                          names)
