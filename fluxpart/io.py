@@ -1141,7 +1141,10 @@ def _glob_files(pattern: str, item: str) -> list:
     References
     ----------
     ``path_resolution(7)``: a path resolution follows at most 40 symbolic links (m);
-    ``stat(2)``: one file is one (st_dev, st_ino) pair whatever path reaches it (m).
+    ``stat(2)``: one file is one (st_dev, st_ino) pair whatever path reaches it (m);
+    Python documentation, ``os.stat_result.st_ino``: platform dependent, "if non-zero,
+    uniquely identifies the file for a given value of st_dev" (m): a path whose inode
+    number is 0 is its own file.
     """
     found: dict = {}
     for path in sorted(Path(text) for text in glob.glob(pattern, recursive=True)):
@@ -1155,9 +1158,14 @@ def _glob_files(pattern: str, item: str) -> list:
             continue
         try:
             facts = path.stat()
-            identity = (facts.st_dev, facts.st_ino)
         except OSError:
-            identity = text
+            facts = None
+        # an inode number of 0 identifies no file: Python's os.stat_result.st_ino is
+        # "if non-zero, uniquely identifies the file"; file systems that have none (some
+        # network shares, FAT and FUSE mounts) give 0 for every file, which made all the
+        # matches one file and kept the first month only (review35)
+        identity = (facts.st_dev, facts.st_ino) if facts is not None and facts.st_ino \
+            else text
         if identity not in found or len(path.parts) < len(found[identity].parts):
             found[identity] = path
     return sorted(found.values())

@@ -60,6 +60,33 @@ INTERVALS_MINUTES = (30, 60)
 
 _RANGES_SHOWN = 5
 _OFFSET_AT_END = re.compile(r"(?:(?<![A-Za-z])Z|[+-]\d{2}:?\d{2})$")   # not "MEZ"
+_OFFSET_AT_END_GROUP = re.compile(r"((?<![A-Za-z])Z|[+-]\d{2}:?\d{2})$")
+#: Most UTC offsets one clock writes: its zone's standard and summer-time offsets (the
+#: time-zone database gives a zone one offset at a time and at most two within a year (m))
+_CLOCK_OFFSETS_MAX = 2
+
+
+def _offsets_of_a_clock(cells: pd.Series, pattern) -> bool:
+    """Whether the ends of `cells` that `pattern` matches can be a clock's UTC offsets.
+
+    A date, a hyphen and a time written as four digits ("20210601-1330") end in what
+    reads as an offset (-13:30), but the time changes from record to record: an offset
+    belongs to the clock and takes at most two values (standard and summer time), so
+    more than two are no offsets (review35: such stamps were told to add %z, which
+    reads 13:30 as the offset of midnight).
+
+    References
+    ----------
+    ISO 8601-1:2019, the UTC offset of local time (m); IANA time-zone database: one
+    offset at a time, standard and daylight saving time within a year (m).
+    """
+    found = cells.str.extract(pattern, expand=False)
+    if isinstance(found, pd.DataFrame):
+        found = found.iloc[:, 0]
+    values = found.dropna()
+    return not values.empty and values.nunique() <= _CLOCK_OFFSETS_MAX
+
+
 #: A stamp cell that holds no date: empty, a negative number or one of at most five
 #: digits (a missing code such as -9999 in the time column)
 _NO_DATE = re.compile(r"\s*(?:-\d+(?:[.,]\d*)?|\+?\d{1,5}(?:[.,]\d*)?)?\s*")
@@ -831,8 +858,13 @@ def _text_around_stamps(text: pd.Series, failed: np.ndarray, time_format: str) -
     if " " in time_format and "T" in stamp:
         candidates.append(("the stamps write 'T' (ISO 8601) between date and time",
                            time_format.replace(" ", "T", 1)))
+    for mark in ("-", "_"):
+        # review35: "20210601-1330", a date and a time joined by a hyphen or an underscore
+        if " " in time_format and mark in stamp:
+            candidates.append((f"the stamps write {mark!r} between date and time",
+                               time_format.replace(" ", mark, 1)))
     offset = _OFFSET_TAIL.search(stamp)
-    if offset and "%z" not in time_format:
+    if offset and "%z" not in time_format and _offsets_of_a_clock(cells, _OFFSET_TAIL):
         # layouts28: a UTC offset after each stamp in words or brackets (" (UTC+01:00)")
         # was refused with no cause; %z reads it, each stamp by its own offset
         tail = offset.group(0)
@@ -1246,7 +1278,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "(%m) in a copy of the file")
         elif _swapped_day_month(text[failed], time_format, text[~failed]):
             hint = "; " + _swapped_day_month(text[failed], time_format, text[~failed])
-        elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format:
+        elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format \
+                and _offsets_of_a_clock(text[failed], _OFFSET_AT_END_GROUP):
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
         elif "%Z" in time_format and re.search(r"\s[A-Za-z]{2,6}$", text.iloc[first]):
             # %Z reads UTC, GMT, the European labels (CET, CEST, ...) and zone names of
