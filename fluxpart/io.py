@@ -170,6 +170,20 @@ _FORTRAN_EXPONENT = re.compile(r"[+-]?(?:\d+\.?\d*|\.\d+)[dD][+-]?\d+")
 #: A header cell that is a number (point or comma decimal): the line is a record, not names.
 _NUMBER_NAME = re.compile(r"[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?")
 _OTHER_GROUPING = re.compile(r"[+-]?[1-9]\d{0,2}(?:['\u2019 \u00a0\u202f\u2009]\d{3})+(?:[.,]\d*)?")
+#: A number followed by a unit written in the cell ("12.3 W/m2", "94 %", "-7.5 °C"), as
+#: some loggers' "value with unit" output and spreadsheets' custom number formats saved as
+#: text write it (common practice): the tail starts with a letter, "%", "°", "µ" or "‰"
+#: and holds no digit before its first such character (so "1.5D+02" and "nan(ind)" are
+#: not taken for one; they are judged before this).
+_NUMBER_WITH_UNIT = re.compile(
+    r"([+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?)\s*([A-Za-z%\u00b0\u00b5\u03bc\u2030].*)")
+#: A number with a mark after it ("0.43*", "1.2?", "5.1!!"), as a logger or an editor marks
+#: a suspect, edited or estimated value (common practice), and two numbers in one cell
+#: joined by "|", "/" or "_" ("0.329|0": a value and its quality flag).
+_MARKED_NUMBER = re.compile(r"([+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?)\s*([*?!#~^]+)")
+_TWO_NUMBERS = re.compile(
+    r"([+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?)\s*([|/_])\s*"
+    r"[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?")
 
 
 @dataclass(frozen=True)
@@ -3537,11 +3551,16 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
     caller decides with all files read). Mapping and flag columns include them.
     """
     taken = set(columns.values()) | set(time_columns) | set(flag_columns)
+    # the names as the header writes them, for the messages: the parser names a repeated
+    # header 'x' also 'x.1', a name not in the file, suggested before (layouts29)
+    written = set(header)
+    shown = [c for c in file_columns if c in written] if len(written) < len(header) \
+        else file_columns
     for time_column in time_columns:
         if time_column not in file_columns:
             raise MissingColumnError(f"[input] time_column = {setting_text(time_column)}: no such column in "
-                                     f"{str(path)!r}{_near(time_column, file_columns, taken)}; "
-                                     f"{_columns_listing(file_columns)}")
+                                     f"{str(path)!r}{_near(time_column, shown, taken)}; "
+                                     f"{_columns_listing(shown, header)}")
     lacking = []
     for column in flag_columns:
         if column not in file_columns:
@@ -3549,8 +3568,8 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
                 lacking.append(("nee_flag", column))
                 continue
             raise MissingColumnError(f"[input.columns] nee_flag = {setting_text(column)}: no such column in "
-                                     f"{str(path)!r}{_near(column, file_columns, taken)}; "
-                                     f"{_columns_listing(file_columns)}")
+                                     f"{str(path)!r}{_near(column, shown, taken)}; "
+                                     f"{_columns_listing(shown, header)}")
     mapping = {}
     for name, column in columns.items():
         if column in time_columns:
@@ -3558,8 +3577,8 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
         if column not in file_columns:
             if not may_lack:
                 raise MissingColumnError(f"[input.columns] {name} = {setting_text(column)}: no such column "
-                                         f"in {str(path)!r}{_near(column, file_columns, taken)}; "
-                                         f"{_columns_listing(file_columns)}")
+                                         f"in {str(path)!r}{_near(column, shown, taken)}; "
+                                         f"{_columns_listing(shown, header)}")
             lacking.append((name, column))
         mapping[name] = column
     used = set(mapping.values()) | set(time_columns) | set(flag_columns)
@@ -3681,13 +3700,20 @@ _DELIMITER_HINTS = ((";", "semicolons", '";"'), ("\t", "tabs", '"\\t"'), (",", "
                     (" ", "spaces", '"whitespace"'), ("|", "vertical bars", '"|"'))
 
 
-def _columns_listing(file_columns: list) -> str:
+def _columns_listing(file_columns: list, header: list = ()) -> str:
+    """The file's columns for a message; `header`, the names as written, adds which of
+    them the header repeats."""
     if len(file_columns) == 1:
         for candidate, name, toml in _DELIMITER_HINTS:
             if candidate in str(file_columns[0]):
                 return (f"the file's header is one cell holding {name}: set [input] "
                         f"delimiter = {toml}")
     listing = f"the file has columns: {', '.join(repr(c) for c in file_columns)}"
+    repeated = [c for c in dict.fromkeys(header) if list(header).count(c) > 1]
+    if repeated:
+        listing += (f"; {', '.join(repr(c) for c in repeated)} "
+                    f"{'is' if len(repeated) == 1 else 'are'} written more than once in the "
+                    "header (two sensors of one name?): rename the copies in a copy of the file")
     unnamed = [n for n, c in enumerate(file_columns, 1) if str(c).startswith("Unnamed: ")]
     if unnamed:
         # the parser's name for an empty header cell, e.g. a table saved with its row index
@@ -3822,6 +3848,27 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
             # it to [input] missing", which would have blanked that one value)
             hint = ("; it is a number with a leading apostrophe (a spreadsheet's mark for a "
                     "number kept as text): remove the apostrophes in a copy of the file")
+        elif (unit := _cell_marks(cleaned[bad], decimal, _NUMBER_WITH_UNIT)):
+            # listed as a missing code it would blank that one value (layouts29: the hint
+            # was "add it to [input] missing"); read with the unit stripped it would trust
+            # a unit the reader does not judge against [input.units]
+            hint = (f"; it is a number followed by a unit in the cell ({unit}), which is "
+                    "not read: remove the unit text from the cells in a copy of the file "
+                    "(a spreadsheet's number format without the unit) and state the unit "
+                    f"in [input.units] ({name.split(':')[0]} = \"...\")")
+        elif (mark := _cell_marks(cleaned[bad], decimal, _MARKED_NUMBER)):
+            # listed as a missing code it would blank one value of a mark whose meaning
+            # (keep or drop) decides the budget; read without it it would keep them all
+            hint = (f"; it is a number with a mark after it ({mark}: a logger's or an "
+                    "editor's mark of a suspect, edited or estimated value?), which is not "
+                    "read: the marked values may be meant kept or dropped, two readings "
+                    "with other budgets; in a copy of the file remove the marks (values "
+                    "kept) or write those cells as a missing code (dropped), and put the "
+                    "mark in a flag column if it is a quality flag")
+        elif (joint := _cell_marks(cleaned[bad], decimal, _TWO_NUMBERS)):
+            hint = (f"; it holds two numbers joined by {joint} (a value and its quality "
+                    "flag?), which are not read: split the column in two at that character "
+                    "in a copy of the file and map the value (and the flag, e.g. nee_flag)")
         elif name.startswith("nee_flag"):
             # a missing flag rejects nothing, so "add it to missing" would keep bad records
             hint = ("; site flags must be numbers (a record is kept where its flag is in "
@@ -3833,6 +3880,25 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
                              f"{int(lines[first])} of {source!r} has {cell!r}, which is not a "
                              f"number; {int(bad.sum())} such cell(s){hint}")
     return _apply_numeric_codes(numbers, is_code, missing, decimal)
+
+
+def _cell_marks(cells: pd.Series, decimal: str, pattern: re.Pattern) -> str:
+    """The text after (or between) the numbers of `cells`, quoted, where every cell
+    matches `pattern` (its first group a number, its second the text); else "".
+
+    Where all carry the same text it is named once, else the first two are named.
+    """
+    if not cells.str.fullmatch(pattern.pattern).all():
+        return ""
+    parts = cells.str.extract(pattern.pattern)
+    numbers = parts[0].str.replace(",", ".", regex=False) if decimal == "," else parts[0]
+    if pd.to_numeric(numbers, errors="coerce").isna().any():
+        return ""
+    texts = pd.unique(parts[1].str.strip())
+    if len(texts) == 1:
+        return f"{texts[0]!r} in every such cell"
+    more = f" and {len(texts) - 2} more" if len(texts) > 2 else ""
+    return f"{texts[0]!r}, {texts[1]!r}{more}"
 
 
 def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: str,
