@@ -319,15 +319,22 @@ def _smoothed_night(nee: np.ndarray, converted: dict, potential) -> bool:
     preflight's smoothing warning names the right one). Where fewer than the smoothing
     check's 100 pairs exist, False (the noise test decides, as before).
     """
-    if potential is not None:
-        night = np.asarray(potential) <= 0.0
-    elif converted.get("rg") is not None:
-        with np.errstate(invalid="ignore"):
-            night = converted["rg"] < 10.0
-    else:
+    night = _night_records(converted, potential)
+    if night is None:
         return False
     found = _pair_correlation(np.asarray(nee, dtype=float), night, _MIN_PAIRS)
     return found is not None and found[0] >= SMOOTHED_CORRELATION
+
+
+def _night_records(converted: dict, potential):
+    """Night records of the smoothing tests: the potential radiation at or below 0 W m-2
+    where given, else Rg below 10 W m-2 (as read); None where neither is known."""
+    if potential is not None:
+        return np.asarray(potential) <= 0.0
+    if converted.get("rg") is not None:
+        with np.errstate(invalid="ignore"):
+            return converted["rg"] < 10.0
+    return None
 
 
 def _mean_length(nee: np.ndarray, converted: dict, potential):
@@ -337,12 +344,8 @@ def _mean_length(nee: np.ndarray, converted: dict, potential):
     times the mean's own over its changes other than exactly 0 (a mean that skips blanks
     repeats itself at the edges of a run) [µmol m-2 s-1 as read]; None where no length is
     found."""
-    if potential is not None:
-        night = np.asarray(potential) <= 0.0
-    elif converted.get("rg") is not None:
-        with np.errstate(invalid="ignore"):
-            night = converted["rg"] < 10.0
-    else:
+    night = _night_records(converted, potential)
+    if night is None:
         return None
     nee = np.asarray(nee, dtype=float)
     length = running_mean_length(nee, night)
