@@ -807,6 +807,26 @@ def _cell_clock(cell: str) -> tuple[float, bool] | None:
     return None
 
 
+_OFFSET_NAME = _LazyPattern(r"(?:utc|gmt|tz|zone)[\s_-]*offset|offset[\s_-]*(?:from[\s_-]*)?"
+                            r"(?:utc|gmt)")
+_MINUTES_NAME = _LazyPattern(r"\bmin(?:utes?)?\b|\[min\]|\(min\)|_min\b")
+
+
+def _offset_cell(name: str, value: str) -> tuple[float, bool] | None:
+    """The offset a number states under a column named for the UTC offset: hours, or
+    minutes where the name says so (``utc_offset_min``) or the number is a multiple of
+    15 beyond 14; None otherwise."""
+    if not _OFFSET_NAME.search(name.lower()):
+        return None
+    try:
+        number = float(value.replace("\u2212", "-"))
+    except ValueError:
+        return None
+    if _MINUTES_NAME.search(name.lower()) or (abs(number) > 14 and number % 15 == 0):
+        number = number / 60
+    return (float(number), False) if abs(number) <= 14 else None
+
+
 def zone_column_message(columns: dict, time_format: str, time_zone: str | None,
                         utc_offset: float | None, source: str) -> str | None:
     """The refusal where a column beside the stamps names their clock, against the settings.
@@ -842,10 +862,11 @@ def zone_column_message(columns: dict, time_format: str, time_zone: str | None,
     if _labelled(time_format) or utc_offset is None:
         return None
     for name, cells in columns.items():
-        values = sorted({str(cell).strip() for cell in cells if str(cell).strip()})
+        stripped = pd.Series(cells, dtype=object).astype(str).str.strip()
+        values = sorted(stripped[stripped != ""].unique())
         if not values or len(values) > 2:
             continue
-        clocks = [_cell_clock(value) for value in values]
+        clocks = [_cell_clock(value) or _offset_cell(name, value) for value in values]
         if any(clock is None for clock in clocks):
             continue
         said = " and ".join(repr(value) for value in values)

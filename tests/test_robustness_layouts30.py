@@ -150,3 +150,34 @@ def test_a_field_count_names_the_header_as_written(tmp_path):
     with pytest.raises(InputFileError) as caught:
         _read(path)
     assert "where the header has 6" in str(caught.value)
+
+
+def _offset_file(path, name, value):
+    ends, values = _records()
+    lines = [f"stamp,{name}," + ",".join(NAMES)]
+    lines += [f"{e:%Y-%m-%d %H:%M},{value}," + ",".join(f"{v:g}" for v in row)
+              for e, row in zip(ends, values, strict=True)]
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    return path
+
+
+@pytest.mark.parametrize(("name", "value", "refused"), [
+    ("utc_offset", "0", "in UTC"),            # hours (ISO 8601 offsets are hours (m))
+    ("TZ offset [min]", "0", "in UTC"),
+    ("UTC offset", "120", "in UTC+2"),        # 120 minutes = 2 h
+    ("utc_offset", "1", None),                # the site's own offset: read as before
+    ("tz_offset_min", "60", None),
+    ("sensor_offset", "0", None),             # not a clock's offset
+])
+def test_a_utc_offset_column_is_judged_like_a_zone(tmp_path, name, value, refused):
+    """A column named for the UTC offset holding one number states the stamps' clock:
+    against [site] utc_offset = 1 both readings are named; where it agrees, or the
+    column is no clock's offset, the file reads as without it."""
+    path = _offset_file(tmp_path / "o.csv", name, value)
+    if refused:
+        with pytest.raises(TimestampError) as caught:
+            _read(path)
+        assert refused in str(caught.value) and "hour(s) apart" in str(caught.value)
+    else:
+        frame, _ = _read(path)
+        assert frame.index[0] == pd.Timestamp("2021-06-01 00:00")
