@@ -779,12 +779,17 @@ _WHOLE_UTC = _LazyPattern(r"^(?:utc|gmt)(?:\s*([+-])\s*(\d{1,2})(?::?(\d{2}))?)?
 _WHOLE_AREA_CITY = _LazyPattern(r"^[A-Z][A-Za-z_]+/[A-Z][A-Za-z_/+-]+$")
 
 
-def _cell_clock(cell: str) -> tuple[float, bool] | None:
+_CLOCK_NAME = _LazyPattern(r"tz|zone|zeit|clock|utc|gmt|time|heure|hora|fuso")
+
+
+def _cell_clock(cell: str, name: str = "") -> tuple[float, bool] | None:
     """The clock one cell names as its whole text: ``(offset [h], civil)``, or None.
 
     ``UTC``, ``GMT`` and ``UTC+02:00`` state a fixed offset, a listed abbreviation
-    (``CET``, ``CEST``) its own, an ``Area/City`` name its zone's standard offset with
-    ``civil`` True where that zone keeps daylight saving."""
+    (``CET``, ``CEST``) its own where the column's `name` is a clock's (``zone``,
+    ``TZ``, ``time_zone``: a code such as ``EST`` under ``station`` is not read), an
+    ``Area/City`` name its zone's standard offset with ``civil`` True where that zone
+    keeps daylight saving."""
     from datetime import timezone as _timezone
     from zoneinfo import ZoneInfo
 
@@ -794,7 +799,7 @@ def _cell_clock(cell: str) -> tuple[float, bool] | None:
         sign, hours, minutes = found.group(1), found.group(2) or "0", found.group(3) or "0"
         offset = int(hours) + int(minutes) / 60
         return (-offset if sign == "-" else float(offset)), False
-    if text in ZONE_ABBREVIATIONS:
+    if text in ZONE_ABBREVIATIONS and _CLOCK_NAME.search(name.lower()):
         return ZONE_ABBREVIATIONS[text], False
     if _WHOLE_AREA_CITY.match(text):
         try:
@@ -866,7 +871,7 @@ def zone_column_message(columns: dict, time_format: str, time_zone: str | None,
         values = sorted(stripped[stripped != ""].unique())
         if not values or len(values) > 2:
             continue
-        clocks = [_cell_clock(value) or _offset_cell(name, value) for value in values]
+        clocks = [_cell_clock(value, name) or _offset_cell(name, value) for value in values]
         if any(clock is None for clock in clocks):
             continue
         said = " and ".join(repr(value) for value in values)

@@ -181,3 +181,20 @@ def test_a_utc_offset_column_is_judged_like_a_zone(tmp_path, name, value, refuse
     else:
         frame, _ = _read(path)
         assert frame.index[0] == pd.Timestamp("2021-06-01 00:00")
+
+
+def test_an_abbreviation_under_another_name_is_not_read_as_a_clock(tmp_path):
+    """"EST" (UTC-5, IANA tz database (m)) under a column named "station" is a code, not
+    the stamps' clock: read as before; under "TZ" it states UTC-5 and is refused."""
+    ends, values = _records()
+    for name, refused in (("station", False), ("TZ", True)):
+        lines = [f"stamp,{name}," + ",".join(NAMES)]
+        lines += [f"{e:%Y-%m-%d %H:%M},EST," + ",".join(f"{v:g}" for v in row)
+                  for e, row in zip(ends, values, strict=True)]
+        path = tmp_path / f"{name}.csv"
+        path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+        if refused:
+            with pytest.raises(TimestampError, match=r"in UTC-5 .*6 hour\(s\) apart"):
+                _read(path)
+        else:
+            assert _read(path)[0].index[0] == pd.Timestamp("2021-06-01 00:00")
