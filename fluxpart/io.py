@@ -58,6 +58,7 @@ from ._validate import (
     refuse_binary,
     unicode_form_hint,
 )
+from .comma_fields import field_count, unquoted_decimal_commas
 from .config import Config, setting_text, suggest_key
 from .errors import (
     ConfigError,
@@ -75,6 +76,7 @@ from .stamp_places import (
     paired_stamps_message,
     parse_like,
     text_conflict_message,
+    zone_column_message,
 )
 from .timestamps import (
     INTERVALS_MINUTES,
@@ -2348,6 +2350,10 @@ def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "
                 f"[input] delimiter = {setting_text(separator)}")
     if found:
         expected, line, saw = found.groups()
+        if header_line and delimiter != _WHITESPACE:
+            # the parser's expected count is the first data line's where that line holds
+            # more fields than the header (it took the extra ones as a row index)
+            expected = field_count(header_line, delimiter)
         return (f"input file {str(path)!r}: line {line} has {saw} fields where the header has "
                 f"{expected} (delimiter {delimiter!r}); a delimiter inside a value, or two "
                 "records run together after an interrupted write? Correct or delete that line "
@@ -2735,8 +2741,17 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     text, used_encoding = _decode(path, encoding, warnings)
     rows_before_header += _separator_line(text, delimiter, rows_before_header, path)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
-    raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter, rows_before_header,
-                                                     rows_after_header, warnings)
+    try:
+        raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter,
+                                                         rows_before_header,
+                                                         rows_after_header, warnings)
+    except InputFileError:
+        named = (unquoted_decimal_commas(str(path), text.splitlines(), rows_before_header,
+                                         rows_before_header + rows_after_header + 1)
+                 if delimiter == "," and decimal == "," else None)
+        if named:
+            raise InputFileError(named) from None
+        raise
     try:
         mapping, flag_columns, lacking = _resolve_columns(
             columns, units, list(raw.columns), header, time_columns, flag_columns, path,
@@ -2762,6 +2777,13 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         _refuse_stated_otherwise(text, header, time_columns, delimiter, rows_before_header,
                                  rows_after_header, time_marks, judged_format, time_zone,
                                  utc_offset, source)
+        used = {*time_columns, *mapping.values(), *flag_columns}
+        zone_said = zone_column_message(
+            {column: raw[column] for column in raw.columns
+             if isinstance(column, str) and column not in used},
+            judged_format, time_zone, utc_offset, source)
+        if zone_said:
+            raise TimestampError(zone_said)
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)

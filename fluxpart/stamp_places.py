@@ -766,12 +766,137 @@ def _zone_setting_conflict(offset: float, time_zone: str, utc_offset: float,
         fix = 'set time_zone = "UTC"'
     else:
         fix = f"set time_zone to a zone of {_hours(offset)}"
-    source = {"line": "that line", "name": "the column's name"}.get(
+    source = {"line": "that line", "name": "the column's name",
+              "column": "that column"}.get(
         what, "time_format's text")
     return (f"[input] time_zone = {setting_text(time_zone)} reads them in "
             f"{' and '.join(_hours(hours) for hours in held)}: the two readings place every "
             f"record {apart} hour(s) apart; {fix} if the file is right, or correct "
             f"{source} in a copy of the file if the setting is")
+
+
+_WHOLE_UTC = _LazyPattern(r"^(?:utc|gmt)(?:\s*([+-])\s*(\d{1,2})(?::?(\d{2}))?)?$")
+_WHOLE_AREA_CITY = _LazyPattern(r"^[A-Z][A-Za-z_]+/[A-Z][A-Za-z_/+-]+$")
+
+
+_CLOCK_NAME = _LazyPattern(r"tz|zone|zeit|clock|utc|gmt|time|heure|hora|fuso")
+
+
+def _cell_clock(cell: str, name: str = "") -> tuple[float, bool] | None:
+    """The clock one cell names as its whole text: ``(offset [h], civil)``, or None.
+
+    ``UTC``, ``GMT`` and ``UTC+02:00`` state a fixed offset, a listed abbreviation
+    (``CET``, ``CEST``) its own where the column's `name` is a clock's (``zone``,
+    ``TZ``, ``time_zone``: a code such as ``EST`` under ``station`` is not read), an
+    ``Area/City`` name its zone's standard offset with ``civil`` True where that zone
+    keeps daylight saving."""
+    from datetime import timezone as _timezone
+    from zoneinfo import ZoneInfo
+
+    text = cell.strip().replace("\u2212", "-")
+    found = _WHOLE_UTC.match(text.lower())
+    if found:
+        sign, hours, minutes = found.group(1), found.group(2) or "0", found.group(3) or "0"
+        offset = int(hours) + int(minutes) / 60
+        return (-offset if sign == "-" else float(offset)), False
+    if text in ZONE_ABBREVIATIONS and _CLOCK_NAME.search(name.lower()):
+        return ZONE_ABBREVIATIONS[text], False
+    if _WHOLE_AREA_CITY.match(text):
+        try:
+            zone = ZoneInfo(text)
+        except (ValueError, OSError, KeyError):
+            return None
+        held = {datetime(2021, month, 15, 12, tzinfo=_timezone.utc).astimezone(zone)
+                .utcoffset().total_seconds() / 3600.0 for month in (1, 7)}
+        return min(held), len(held) > 1
+    return None
+
+
+_OFFSET_NAME = _LazyPattern(r"(?:utc|gmt|tz|zone)[\s_-]*offset|offset[\s_-]*(?:from[\s_-]*)?"
+                            r"(?:utc|gmt)")
+_MINUTES_NAME = _LazyPattern(r"\bmin(?:utes?)?\b|\[min\]|\(min\)|_min\b")
+
+
+def _offset_cell(name: str, value: str) -> tuple[float, bool] | None:
+    """The offset a number states under a column named for the UTC offset: hours, or
+    minutes where the name says so (``utc_offset_min``) or the number is a multiple of
+    15 beyond 14; None otherwise."""
+    if not _OFFSET_NAME.search(name.lower()):
+        return None
+    try:
+        number = float(value.replace("\u2212", "-"))
+    except ValueError:
+        return None
+    if _MINUTES_NAME.search(name.lower()) or (abs(number) > 14 and number % 15 == 0):
+        number = number / 60
+    return (float(number), False) if abs(number) <= 14 else None
+
+
+def zone_column_message(columns: dict, time_format: str, time_zone: str | None,
+                        utc_offset: float | None, source: str) -> str | None:
+    """The refusal where a column beside the stamps names their clock, against the settings.
+
+    Some exports write the clock in a column of its own (``zone``: ``UTC`` on every
+    record, or ``CET`` and ``CEST`` by season). Without this check the reader takes the
+    stamps as the settings say and the column is ignored: every record an hour or more
+    from its place, or the summer records an hour off.
+
+    Parameters
+    ----------
+    columns : dict
+        Column name -> its cells (pandas Series of str) for the columns neither read
+        nor holding the stamps.
+    time_format, time_zone, utc_offset
+        As in :func:`name_conflict_message`.
+    source : str
+        The file, as named in the message.
+
+    Returns
+    -------
+    str or None
+        One line naming the column, the clock it states, the clock the settings read and
+        the settings of both readings; None where they agree, the format reads the clock
+        from the stamps, or no column holds only one or two clock labels.
+
+    References
+    ----------
+    IANA time zone database (abbreviations, "Area/City" names and their offsets, read
+    through the standard library's ``zoneinfo``) (m); ISO 8601-1:2019 (offsets from UTC
+    as ``+hh:mm``) (m). Daylight saving time advances clocks by one hour (m).
+    """
+    if _labelled(time_format) or utc_offset is None:
+        return None
+    for name, cells in columns.items():
+        stripped = pd.Series(cells, dtype=object).astype(str).str.strip()
+        values = sorted(stripped[stripped != ""].unique())
+        if not values or len(values) > 2:
+            continue
+        clocks = [_cell_clock(value, name) or _offset_cell(name, value) for value in values]
+        if any(clock is None for clock in clocks):
+            continue
+        said = " and ".join(repr(value) for value in values)
+        where = f"column {name!r} of {source!r} holds only {said}"
+        civil = any(is_civil for _, is_civil in clocks) or len({o for o, _ in clocks}) > 1
+        if civil and time_zone is None:
+            shown = " and ".join(_hours(hours) for hours in sorted({o for o, _ in clocks}))
+            named = (setting_text(values[0]) if len(values) == 1 and "/" in values[0]
+                     else "the site's zone (\"Area/City\")")
+            return (f"{where}, which state{'s' if len(values) == 1 else ''} stamps in civil time with daylight saving "
+                    f"({shown}{' in winter' if len(clocks) == 1 else ''}), but without "
+                    "[input] time_zone they are read as the site's local standard time "
+                    f"({_hours(utc_offset)}, [site] utc_offset = {utc_offset:g}) all year: "
+                    f"the two readings place the summer records an hour apart; set "
+                    f"time_zone = {named} if the column is right, "
+                    "or correct that column in a copy of the file if the stamps are in "
+                    "local standard time")
+        for value, (offset, _) in zip(values, clocks, strict=True):
+            refusal = _clock_refusal(
+                f"{where}, which states stamps in {_hours(offset)} ({value!r})", offset,
+                time_zone, utc_offset, "column", "if the column is right, or correct that "
+                "column in a copy of the file if the stamps are in local standard time")
+            if refusal:
+                return refusal
+    return None
 
 
 def format_clock(time_format: str) -> tuple[str, float] | None:

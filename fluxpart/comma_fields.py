@@ -1,0 +1,90 @@
+"""Decimal commas left unquoted in a comma-delimited file.
+
+A file read with ``[input] delimiter = ","`` and ``decimal = ","`` is readable only where
+every value holding a decimal comma is quoted (``"2,63"``), as CSV writers quote a cell
+holding the delimiter. Unquoted, ``2,63`` is two fields: a line holds as many extra
+fields as its values hold decimal commas, and no reading can tell which comma separates
+and which marks the decimals. The reader refuses such a file; this module names that
+cause instead of a field count alone.
+"""
+
+from __future__ import annotations
+
+import csv
+import re
+
+#: a comma between two digits outside quotes, as an unquoted decimal comma writes it
+_DIGIT_COMMA_DIGIT = re.compile(r"\d,\d")
+
+
+def field_count(line: str, delimiter: str) -> int:
+    """Number of fields of one line, quotes honoured (RFC 4180 (m)).
+
+    Parameters
+    ----------
+    line : str
+        One line of the file, without its line end.
+    delimiter : str
+        One-character field delimiter.
+
+    Returns
+    -------
+    int
+        Fields of the line, as a CSV reader splits it [1].
+
+    References
+    ----------
+    .. [1] Shafranovich, Y. (2005). Common Format and MIME Type for Comma-Separated
+       Values (CSV) Files. RFC 4180 (m).
+    """
+    return len(next(csv.reader([line], delimiter=delimiter), [""]))
+
+
+def unquoted_decimal_commas(path: str, text_lines: list, header_index: int,
+                            first_data_index: int) -> str | None:
+    """The refusal of a comma-delimited file whose decimal commas are not quoted.
+
+    Parameters
+    ----------
+    path : str
+        The file, as named in the message.
+    text_lines : list of str
+        The file's lines.
+    header_index : int
+        0-based index of the header line.
+    first_data_index : int
+        0-based index of the first record line (after any units line).
+
+    Returns
+    -------
+    str or None
+        One line naming the first record line with more fields than the header whose
+        unquoted text holds a comma between two digits, and the fix; None where no such
+        line exists or the header is one cell (the file's trouble is another).
+
+    References
+    ----------
+    .. [1] Shafranovich, Y. (2005). RFC 4180, section 2, rule 6: fields containing the
+       delimiter are enclosed in double quotes (m).
+    """
+    if header_index >= len(text_lines):
+        return None
+    width = field_count(text_lines[header_index], ",")
+    if width < 2:
+        # a header of one cell: a file of another delimiter, which the reader names
+        return None
+    for index in range(first_data_index, len(text_lines)):
+        line = text_lines[index]
+        if not line.strip():
+            continue
+        fields = field_count(line, ",")
+        unquoted = re.sub(r'"[^"]*"', '""', line)
+        if fields > width and _DIGIT_COMMA_DIGIT.search(unquoted):
+            shown = line if len(line) <= 80 else line[:77] + "..."
+            return (f"input file {path!r}: line {index + 1} ({shown!r}) has {fields} fields "
+                    f"where the header has {width}: with [input] delimiter = \",\" and "
+                    "decimal = \",\" a value with a decimal comma must be quoted (\"2,63\"), "
+                    "and here it is not, so no reading can tell which comma separates values "
+                    "and which marks decimals; export the file with another delimiter (\";\" "
+                    "or a tab) and set [input] delimiter to it, or quote the values")
+    return None
