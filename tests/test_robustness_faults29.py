@@ -1,0 +1,66 @@
+"""Result safety and input faults found by round faults29 (invented Quillmoor towers only).
+
+Each test fails on the code before the fix it names.
+"""
+from __future__ import annotations
+
+import glob
+import os
+from pathlib import Path
+
+from bundles import make_bundle
+
+from fluxpart.io import _walk_without_loops, read_site_config
+
+
+def _glob_bundle(base: Path) -> Path:
+    """A site whose ``[input] path`` is ``months/**/*.csv``: two month files of the
+    30-day Quillmoor bundle (known truth: 720 + 720 records)."""
+    config = make_bundle(base, name="site.toml")
+    lines = (base / "tower.csv").read_text().splitlines(keepends=True)
+    (base / "months" / "a" / "b").mkdir(parents=True)
+    (base / "months" / "a" / "b" / "m01.csv").write_text("".join(lines[:721]))
+    (base / "months" / "m02.csv").write_text("".join(lines[:1] + lines[721:]))
+    text = config.read_text().replace('path = "tower.csv"', 'path = "months/**/*.csv"')
+    config.write_text(text)
+    return config
+
+
+def test_two_looping_folder_links_in_a_recursive_glob_finish_and_read_each_file_once(
+        tmp_path):
+    """Known-truth recovery on invented data. Two links back to enclosing folders
+    (``a/up -> ..`` and ``a/b/up2 -> ../..``) made Python's ``glob`` branch at every level
+    up to the kernel's limit of 40 links (path_resolution(7) (m)): about 2**40 paths, the
+    `run` never finished (faults28, left alone; before this fix this test hangs). The loop-safe walk leaves the looping
+    links out: the two files once each, under their own paths, and the 1440 records."""
+    config = _glob_bundle(tmp_path)
+    (tmp_path / "months" / "a" / "up").symlink_to("..")
+    (tmp_path / "months" / "a" / "b" / "up2").symlink_to("../..")
+    site = read_site_config(config)
+    assert [p.relative_to(tmp_path).as_posix() for p in site.input_paths] == [
+        "months/a/b/m01.csv", "months/m02.csv"]
+    frame, _ = site.read()
+    assert len(frame) == 24 * 2 * 30
+
+
+def test_the_loop_free_walk_matches_the_same_files_as_glob(tmp_path):
+    """Python's ``glob`` (a general-purpose library) is the reference on a tree without
+    loops: hidden names, a folder link that is no loop (``latest -> 2021/06``), brackets
+    in a folder's name (escaped), ``**`` first, last and twice, and a pattern ending in a
+    separator (folders only). The walk must give the same set of files, and say no loop."""
+    base = tmp_path / "d"
+    for folder in ("2021/06", "2021/07", ".hid", "x[1]"):
+        (base / folder).mkdir(parents=True)
+    for name in ("2021/06/a.csv", "2021/07/b.csv", ".hid/c.csv", "2021/.e.csv",
+                 "x[1]/f.csv", "g.csv", "2021/06/h.txt"):
+        (base / name).write_text("1\n")
+    (base / "latest").symlink_to("2021/06")
+    root = str(base)
+    patterns = [f"{root}/**/*.csv", f"{root}/**", f"{root}/20*/**/*.csv",
+                f"{root}/**/06/*", f"{root}/x[[]1]/**/*.csv", f"{root}/**/.*.csv",
+                f"{root}/**/**/*.csv", f"{root}/**/"]
+    for pattern in patterns:
+        expected = {p for p in glob.glob(pattern, recursive=True) if os.path.isfile(p)}
+        found, looped = _walk_without_loops(pattern)
+        assert not looped, pattern
+        assert {p for p in found if os.path.isfile(p)} == expected, pattern
