@@ -64,3 +64,30 @@ def test_the_loop_free_walk_matches_the_same_files_as_glob(tmp_path):
         found, looped = _walk_without_loops(pattern)
         assert not looped, pattern
         assert {p for p in found if os.path.isfile(p)} == expected, pattern
+
+
+def test_an_interrupt_between_the_netcdf_file_and_the_csv_folder_is_told_as_it_is(
+        bundle, tmp_path, capsys, monkeypatch):
+    """Ctrl-C (SIGINT, exit 128 + 2 = 130, the shell's convention (m)) after `export` wrote
+    the NetCDF file and before the CSV folder: measured 1.1 s into `export --netcdf --csv`,
+    the 'wrote e.nc' line was followed by "the NetCDF file is the earlier one (or
+    absent)", contradicting the file just written. Known truth: the NetCDF file is there
+    (new), the CSV folder is not, and the line says neither is half-written without
+    claiming the NetCDF file is the earlier one."""
+    from fluxpart import export_csv
+    from fluxpart.cli import main
+
+    def interrupted(*args, **kwargs):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(export_csv, "command_csv", interrupted)
+    netcdf, folder = tmp_path / "e.nc", tmp_path / "csv"
+    code = main(["export", str(bundle / "out"), "--netcdf", str(netcdf), "--csv", str(folder)])
+    said = capsys.readouterr()
+    assert code == 130
+    assert netcdf.is_file() and not folder.exists()
+    assert f"wrote {netcdf}" in said.out
+    line = said.err.strip()
+    assert line.startswith("error: interrupted (Ctrl-C)") and len(line.splitlines()) == 1
+    assert "earlier one (or absent)" not in line
+    assert "complete and new where a 'wrote' line above names them" in line
