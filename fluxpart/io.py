@@ -55,6 +55,7 @@ from ._validate import (
     odd_entry,
     other_system_path_hint,
     owner_file_message,
+    printable_line,
     read_toml,
     refuse_binary,
     unicode_form_hint,
@@ -308,8 +309,10 @@ class ReadReport:
 
     def __str__(self) -> str:
         files = self.files or (self.source,)
-        lines = [f"source            {files[0]}"]
-        lines.extend(f"                  {name}" for name in files[1:])
+        # a line break or control character in a file's name is shown escaped, so that
+        # each file stays on its own line (faults28 left a raw newline here)
+        lines = [f"source            {printable_line(str(files[0]))}"]
+        lines.extend(f"                  {printable_line(str(name))}" for name in files[1:])
         if self.encodings and set(self.encodings) != {"utf-8"}:
             lines.append("encoding          " + ", ".join(sorted(set(self.encodings))))
         lines += [

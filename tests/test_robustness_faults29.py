@@ -91,3 +91,24 @@ def test_an_interrupt_between_the_netcdf_file_and_the_csv_folder_is_told_as_it_i
     assert line.startswith("error: interrupted (Ctrl-C)") and len(line.splitlines()) == 1
     assert "earlier one (or absent)" not in line
     assert "complete and new where a 'wrote' line above names them" in line
+
+
+def test_check_shows_a_line_break_in_an_inputs_name_escaped_on_its_own_line(
+        copy, capsys):
+    """A file name may hold any byte but '/' and NUL (POSIX, "filename" (m)): an input
+    named ``tow<LF>er.csv`` split `check`'s ``source`` line in two, the second half
+    looking like a line of its own (faults28, left alone). Python's ``str.isprintable``
+    and ``unicode_escape`` (a general-purpose library) give the reference spelling
+    ``tow\\ner.csv``; the line after ``source`` is the ``interval`` line."""
+    from fluxpart.cli import main
+
+    (copy / "tower.csv").rename(copy / "tow\ner.csv")
+    config = copy / "site.toml"
+    config.write_text(config.read_text().replace('path = "tower.csv"',
+                                                 'path = "tow\\ner.csv"'))
+    # exit 1: the 30-day bundle's problems are listed (a partial year), as for tower.csv
+    assert main(["check", str(config)]) == 1
+    lines = capsys.readouterr().out.splitlines()
+    at = next(i for i, line in enumerate(lines) if line.startswith("source "))
+    assert lines[at].endswith("/tow\\ner.csv")
+    assert lines[at + 1].startswith("interval ")
