@@ -580,8 +580,11 @@ _AFTER_STOP = {
              "or be only partly rewritten (network.json then says so and read_network refuses "
              "them): run the batch again, which skips the sites up to date and rewrites them "
              "whole",
-    "export": "the NetCDF file is the earlier one (or absent), never half-written; the CSV "
-              "folder is absent or complete",
+    # the NetCDF file is written before the CSV folder: a stop between the two leaves the
+    # new NetCDF file (its 'wrote' line printed) and no CSV folder (faults29)
+    "export": "the NetCDF file and the CSV folder are each as before (the earlier file, or "
+              "none) or complete and new where a 'wrote' line above names them, never "
+              "half-written",
     "report": "the report folder holds the earlier report (or none) or the complete new one, "
               "never a mix",
     "verify": "nothing was written",

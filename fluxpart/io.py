@@ -32,6 +32,7 @@ import codecs
 import csv
 import difflib
 import errno
+import fnmatch
 import glob
 import gzip
 import hashlib
@@ -54,6 +55,7 @@ from ._validate import (
     odd_entry,
     other_system_path_hint,
     owner_file_message,
+    printable_line,
     read_toml,
     refuse_binary,
     unicode_form_hint,
@@ -309,8 +311,10 @@ class ReadReport:
 
     def __str__(self) -> str:
         files = self.files or (self.source,)
-        lines = [f"source            {files[0]}"]
-        lines.extend(f"                  {name}" for name in files[1:])
+        # a line break or control character in a file's name is shown escaped, so that
+        # each file stays on its own line (faults28 left a raw newline here)
+        lines = [f"source            {printable_line(str(files[0]))}"]
+        lines.extend(f"                  {printable_line(str(name))}" for name in files[1:])
         if self.encodings and set(self.encodings) != {"utf-8"}:
             lines.append("encoding          " + ", ".join(sorted(set(self.encodings))))
         lines += [
@@ -1142,6 +1146,118 @@ def _check_keys(table: dict, valid, where: str, spell: str) -> None:
             raise ConfigError(f"{where} {spell.format(key=key)} is unknown{hint}")
 
 
+def _loop_safe_glob(pattern: str) -> list:
+    """The paths ``glob.glob(pattern, recursive=True)`` gives, without following a link
+    back into one of its own enclosing folders.
+
+    A tree without such a link gets exactly ``glob.glob``'s list. With one, ``glob``
+    follows each looping link until the kernel's limit of 40 links, and with two looping
+    links in one ``**`` expansion it branches at every level (about 2**40 paths) and never
+    returns; the same walk is then made here with the looping links left out: ``**``
+    matches zero or more folders not starting with '.', any other component is matched
+    with ``fnmatch`` (a name starting with '.' only by a pattern starting with '.'), as
+    glob does. A link to a folder that is not an enclosing one (``latest -> 2021/06``) is
+    followed, as by glob; :func:`_glob_files` keeps each file once.
+
+    Parameters
+    ----------
+    pattern : str
+        Absolute or relative glob pattern; ``**`` spans folders.
+
+    Returns
+    -------
+    list of str
+        Matching paths (files and folders), unsorted.
+
+    References
+    ----------
+    ``path_resolution(7)``: a path resolution follows at most 40 symbolic links (m);
+    Python documentation, ``glob``: "If recursive is true, the pattern '**' will match any
+    files and zero or more directories"; files beginning with '.' are matched only by a
+    pattern that begins with '.' (m).
+    """
+    if "**" not in Path(pattern).parts:
+        return glob.glob(pattern, recursive=True)
+    found, looped = _walk_without_loops(pattern)
+    if not looped:
+        # no link back into an enclosing folder: glob's own list, as before
+        return glob.glob(pattern, recursive=True)
+    return found
+
+
+def _walk_without_loops(pattern: str) -> tuple:
+    """``pattern``'s matches as :func:`_loop_safe_glob` describes, and whether a link
+    back into an enclosing folder was left out: (list of str, bool).
+
+    References
+    ----------
+    Python documentation, ``glob`` and ``fnmatch`` (m); ``path_resolution(7)`` (m).
+    """
+    parts = Path(pattern).parts
+    found: list = []
+    looped = [False]
+
+    def hidden(name: str) -> bool:
+        return name.startswith(".")
+
+    def entries(folder: str) -> list:
+        try:
+            with os.scandir(folder or ".") as listing:
+                return sorted(entry.name for entry in listing)
+        except OSError:
+            return []
+
+    def real(path: str) -> str:
+        return os.path.realpath(path or ".")
+
+    def visit(folder: str, rest: tuple, chain: frozenset) -> None:
+        if not rest:
+            found.append(folder)
+            return
+        head, tail = rest[0], rest[1:]
+        if head == "**":
+            visit(folder, tail, chain)
+            for name in entries(folder):
+                path = os.path.join(folder, name)
+                if hidden(name):
+                    continue
+                if os.path.isdir(path):
+                    target = real(path)
+                    if target in chain:
+                        looped[0] = True
+                        continue
+                    visit(path, rest, chain | {target})
+                elif not tail:
+                    found.append(path)
+            return
+        if not glob.has_magic(head):
+            path = os.path.join(folder, head)
+            if not tail:
+                if os.path.lexists(path):
+                    found.append(path)
+            elif os.path.isdir(path):
+                visit(path, tail, chain | {real(path)})
+            return
+        for name in entries(folder):
+            if hidden(name) and not hidden(head):
+                continue
+            if not fnmatch.fnmatchcase(name, head):
+                continue
+            path = os.path.join(folder, name)
+            if not tail:
+                found.append(path)
+            elif os.path.isdir(path):
+                visit(path, tail, chain | {real(path)})
+
+    start = parts[0] if Path(pattern).is_absolute() else ""
+    rest = parts[1:] if start else parts
+    visit(start, tuple(rest), frozenset({real(start)}))
+    if pattern.endswith(("/", os.sep)):
+        # a pattern ending in a separator matches folders only, as in glob
+        found = [path for path in found if os.path.isdir(path)]
+    return found, looped[0]
+
+
 def _glob_files(pattern: str, item: str) -> list:
     """The files the glob `pattern` (of ``[input] path = item``) matches, sorted, each once.
 
@@ -1163,7 +1279,7 @@ def _glob_files(pattern: str, item: str) -> list:
     number is 0 is its own file.
     """
     found: dict = {}
-    for path in sorted(Path(text) for text in glob.glob(pattern, recursive=True)):
+    for path in sorted(Path(text) for text in _loop_safe_glob(pattern)):
         text = str(path)
         odd = odd_entry(path)
         if odd:

@@ -77,6 +77,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from ._validate import printable_line
 from .config import Config
 from .errors import FluxpartError, InputFileError, OutputError
 from .fingerprint import code_fingerprint, platform_differences, platform_record
@@ -809,37 +810,6 @@ def result_identity(manifest: dict) -> str:
     if code.get("version"):
         parts.append(f"written by fluxpart {code['version']}")
     return printable_line("; ".join(parts))
-
-
-def printable_line(text: str) -> str:
-    """`text` with every character that is not printable written as an escape.
-
-    A file name may hold a line break, a tab or a terminal control sequence (``ESC``,
-    ``\\x1b[2J`` clears the screen), and a manifest edited by hand may hold them in any
-    field: printed as they are, they split verify's one-line ``result:`` summary or
-    rewrote the auditor's terminal. Printable characters of any script stay as they are.
-
-    Parameters
-    ----------
-    text : str
-        Text from a manifest (names, the seed, the release).
-
-    Returns
-    -------
-    str
-        One line: each non-printable character as ``\\xNN``, ``\\uNNNN`` or
-        ``\\UNNNNNNNN`` (Python's escapes for its code point).
-
-    References
-    ----------
-    Python documentation, ``str.isprintable`` (Unicode categories "Other" and
-    "Separator" other than the space are not printable) (m); ECMA-48 control functions,
-    ESC (0x1B) introducing control sequences (m).
-    """
-    if text.isprintable():
-        return text
-    return "".join(c if c.isprintable() else c.encode("unicode_escape").decode("ascii")
-                   for c in text)
 
 
 # --------------------------------------------------------------------------- inputs
