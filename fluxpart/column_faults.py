@@ -1472,6 +1472,7 @@ def _nearly_unflagged_run(nee: np.ndarray, rejected, needed: int):
             best = (start, length, flagged)
     return best
 
+
 def _nearly_complete_window(kept: np.ndarray, needed: int):
     """(start, lost count) of the window of `needed` consecutive records losing the fewest
     (missing or flag-rejected), where they are under :data:`_FEW_REJECTED` of it, or None

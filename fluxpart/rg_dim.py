@@ -30,6 +30,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from .measured_months import month_runs_text
 from .unit_checks import _MIN_ACTIVE_RECORDS, _PPFD_CLEAR_MIN, _TOO_DARK_MIN_DAYS
 
 __all__ = ["HIGH_SUN_POTENTIAL", "dim_rg_months"]
@@ -155,17 +156,9 @@ def dim_rg_months(rg, potential, stamps, columns=None) -> str | None:
     if not rest_clear >= _PPFD_CLEAR_MIN:
         return None
     dim_clear = _clear_quantile(ratio[inside[high[inside]]])
-    named = [str(m) for m in labels[dim]]
+    named = pd.PeriodIndex(labels[dim], freq="M")
     # consecutive dim months as runs ("2021-03 to 2021-04, 2021-08"), in record order
-    runs, begin = [], None
-    for i in range(labels.size + 1):
-        if i < labels.size and dim[i]:
-            begin = i if begin is None else begin
-        elif begin is not None:
-            last = str(labels[i - 1])
-            runs.append(str(labels[begin]) + ("" if i - 1 == begin else f" to {last}"))
-            begin = None
-    span = ", ".join(runs)
+    span = month_runs_text(list(named))
     column = (columns or {}).get("rg", "rg")
     return (f"rg (column {column!r}) from {span} ({len(named)} month(s); months without "
             "the sun high are not judged): with the sun high "

@@ -15,6 +15,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from ._groups import group_positions
+from .column_faults import _correlation as _paired_correlation
 from .variables import vpd_from_rh
 
 __all__ = ["vpd_exchanged_in_months"]
@@ -34,13 +36,9 @@ _MONTH_RECORDS = 480
 
 
 def _correlation(a: np.ndarray, b: np.ndarray) -> float:
-    usable = np.isfinite(a) & np.isfinite(b)
-    if usable.sum() < _MONTH_RECORDS:
-        return float("nan")
-    a, b = a[usable], b[usable]
-    if a.std() == 0 or b.std() == 0:
-        return float("nan")
-    return float(np.corrcoef(a, b)[0, 1])
+    """Pearson correlation of the pairs both present, NaN below :data:`_MONTH_RECORDS`
+    (the column checks' sums of products: the same bits on every CPU)."""
+    return _paired_correlation(a, b, _MONTH_RECORDS)[0]
 
 
 def vpd_exchanged_in_months(tair, rh, vpd, others: dict, stamps,
@@ -92,8 +90,8 @@ def vpd_exchanged_in_months(tair, rh, vpd, others: dict, stamps,
     codes, labels = pd.factorize(months, sort=True)
     follows_somewhere = False
     exchanged = {}
-    for code, label in enumerate(labels):
-        rows = codes == code
+    for code, rows in group_positions(codes, where=codes >= 0).items():
+        label = labels[code]
         own = _correlation(vpd[rows], implied[rows])
         if not np.isfinite(own):
             continue
