@@ -14,7 +14,7 @@ earlier trials nor the project's generators did:
      three to four weeks later (undeclared) and decomposing on a bare field until the next
      sowing;
 - L  a larch forest (a deciduous conifer) on permafrost at 62.3 deg N, hourly, with a leafy
-     season of about three months, winters to -40 deg C, a station dark for 2-4 weeks each
+     season of about three months, winters to -45 deg C, a station dark for 2-4 weeks each
      winter (rows absent), its clock on UTC 9 hours from the site's standard time;
 - F  a coastal heath at 58.9 deg N with sea fog: in fog the light is low and nearly all
      diffuse (the canopy uses diffuse light more efficiently), the leaves are wet
@@ -520,17 +520,17 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
     elif k == "L":  # title line, UTC with Z, kelvin, rows absent
         utc = idx + step - pd.Timedelta(hours=site.utc_offset)
         frame = pd.DataFrame({
-            "time": utc.strftime("%Y-%m-%dT%H:%MZ"), "co2_flux": fmt(data.nee, 3, "-9999"),
-            "sw_in": fmt(data.rg, 1, "-9999"), "t_air_K": fmt(data.tair + 273.15, 2, "-9999"),
-            "rh": fmt(data.rh, 1, "-9999"), "u_star": fmt(data.ustar, 3, "-9999"),
-            "t_soil_10": fmt(data.tsoil, 2, "-9999")})
+            "utc_end": utc.strftime("%Y-%m-%dT%H:%MZ"), "carbon_exch": fmt(data.nee, 3, "-9999"),
+            "solar_down": fmt(data.rg, 1, "-9999"), "air_kelvin": fmt(data.tair + 273.15, 2, "-9999"),
+            "rel_hum": fmt(data.rh, 1, "-9999"), "fric_vel": fmt(data.ustar, 3, "-9999"),
+            "soil_t10": fmt(data.tsoil, 2, "-9999")})
         body = frame.to_csv(index=False)
         (folder / "ulakhan_hourly.csv").write_text("Ulakhan larch tower, hourly averages\n" + body)
         text = toml(site, 'path = "ulakhan_hourly.csv"\nrows_before_header = 1\n'
-                    'time_column = "time"\ntime_format = "%Y-%m-%dT%H:%MZ"\n'
+                    'time_column = "utc_end"\ntime_format = "%Y-%m-%dT%H:%MZ"\n'
                     'time_marks = "end"\nmissing = [-9999]\n',
-                    'nee = "co2_flux"\nrg = "sw_in"\ntair = "t_air_K"\nrh = "rh"\n'
-                    'ustar = "u_star"\ntsoil = "t_soil_10"\n', 'tair = "K"\n', processing)
+                    'nee = "carbon_exch"\nrg = "solar_down"\ntair = "air_kelvin"\nrh = "rel_hum"\n'
+                    'ustar = "fric_vel"\ntsoil = "soil_t10"\n', 'tair = "K"\n', processing)
     elif k == "F":  # end stamps with seconds, PPFD, RH %, a flag column
         end = idx + step
         frame = pd.DataFrame({
@@ -546,15 +546,15 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
                     'rh = "RF"\nustar = "ustjerne"\ntsoil = "Tjord"\n', processing=processing)
     elif k == "D":  # 12-hour clock, month-first start stamps, Rg MJ m-2 per hour
         frame = pd.DataFrame({
-            "Fecha": idx.strftime("%m/%d/%Y %I:%M %p"), "Fc": fmt(data.nee, 3, "NA"),
+            "Fecha": idx.strftime("%m/%d/%Y %I:%M %p"), "Flujo_CO2": fmt(data.nee, 3, "NA"),
             "Rs_MJ": fmt(data.rg * 3600e-6, 4, "NA"), "Tair": fmt(data.tair, 2, "NA"),
-            "HR": fmt(data.rh, 1, "NA"), "Ustar": fmt(data.ustar, 3, "NA"),
+            "HR": fmt(data.rh, 1, "NA"), "VelFric": fmt(data.ustar, 3, "NA"),
             "Tsuelo": fmt(data.tsoil, 2, "NA")})
         frame.to_csv(folder / "paloseco.csv", index=False)
         text = toml(site, 'path = "paloseco.csv"\ntime_column = "Fecha"\n'
                     'time_format = "%m/%d/%Y %I:%M %p"\ntime_marks = "start"\n'
                     'missing = ["NA"]\n',
-                    'nee = "Fc"\nrg = "Rs_MJ"\ntair = "Tair"\nrh = "HR"\nustar = "Ustar"\n'
+                    'nee = "Flujo_CO2"\nrg = "Rs_MJ"\ntair = "Tair"\nrh = "HR"\nustar = "VelFric"\n'
                     'tsoil = "Tsuelo"\n', 'rg = "MJ m-2"\n', processing)
     elif k == "P":  # two yearly tab files, middle stamps, NEE in g C m-2 per record
         mid = idx + step / 2
@@ -580,16 +580,16 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
         frame = pd.DataFrame({
             "stamp": idx.strftime("%Y%m%d%H%M"),
             "co2_mg": fmt(data.nee.to_numpy() * 44.0095e-3, 5, "-999"),
-            "glob": fmt(data.rg, 1, "-999"), "ta": fmt(data.tair, 2, "-999"),
-            "rhf": fmt(data.rh / 100, 3, "-999"), "us": fmt(data.ustar, 3, "-999"),
-            "ts": fmt(data.tsoil, 2, "-999")})
+            "globrad": fmt(data.rg, 1, "-999"), "t_luft": fmt(data.tair, 2, "-999"),
+            "rf_frac": fmt(data.rh / 100, 3, "-999"), "u_reib": fmt(data.ustar, 3, "-999"),
+            "t_boden": fmt(data.tsoil, 2, "-999")})
         lines = [" ".join(frame.columns)] + [" ".join(r) for r in frame.to_numpy().astype(str)]
         (folder / "moosried.dat").write_text("\n".join(lines) + "\n")
         text = toml(site, 'path = "moosried.dat"\ndelimiter = "whitespace"\n'
                     'time_column = "stamp"\ntime_format = "%Y%m%d%H%M"\ntime_marks = "start"\n'
                     'missing = [-999]\n',
-                    'nee = "co2_mg"\nrg = "glob"\ntair = "ta"\nrh = "rhf"\nustar = "us"\n'
-                    'tsoil = "ts"\n', 'nee = "mg CO2 m-2 s-1"\nrh = "fraction"\n', processing)
+                    'nee = "co2_mg"\nrg = "globrad"\ntair = "t_luft"\nrh = "rf_frac"\nustar = "u_reib"\n'
+                    'tsoil = "t_boden"\n', 'nee = "mg CO2 m-2 s-1"\nrh = "fraction"\n', processing)
     name = f"site_{k}.toml"
     (folder / name).write_text(text)
     return name
