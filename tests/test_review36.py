@@ -1,0 +1,68 @@
+"""Fresh-eyes review of 0.26.0 as the three users (round review36).
+
+Outside facts: a record's stamp marks the start, middle or end of its averaging
+interval, and a start stamp needs no shift to be the interval's start (common practice;
+ISO 8601-1:2019 time intervals (m)). The records are invented.
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.io import read_table
+
+MAPPING = {"nee": "co2_flux", "rg": "sw_in", "tair": "t_air", "vpd": "vpd_air",
+           "ustar": "u_fric"}
+
+
+def _file(path, marks, minutes=30, periods=96):
+    """Invented half-hourly records, stamped at the `marks` of their interval."""
+    rng = np.random.default_rng(2)
+    starts = pd.date_range("2021-06-01", periods=periods, freq=f"{minutes}min")
+    hour = starts.hour + starts.minute / 60
+    daylight = np.clip(np.sin((hour - 6) / 12 * np.pi), 0, None)
+    shift = {"start": 0, "middle": minutes / 2, "end": minutes}[marks]
+    pd.DataFrame({
+        "stamp": (starts + pd.Timedelta(minutes=shift)).strftime("%Y-%m-%d %H:%M"),
+        "co2_flux": np.round(3 - 15 * daylight + rng.normal(0, 1.5, periods), 3),
+        "sw_in": np.round(800 * daylight, 1),
+        "t_air": np.round(12 + 8 * daylight, 2),
+        "vpd_air": np.round(2 + 14 * daylight, 2),
+        "u_fric": np.round(rng.uniform(0.05, 0.8, periods), 3),
+    }).to_csv(path, index=False)
+    return path
+
+
+@pytest.mark.parametrize("marks, line", [
+    ("start", "time marks        start (stamps are interval starts, not shifted)"),
+    ("middle", "time marks        middle (stamps shifted by -15 min to interval starts)"),
+    ("end", "time marks        end (stamps shifted by -30 min to interval starts)"),
+])
+def test_the_check_line_of_the_time_marks_says_what_was_done(tmp_path, marks, line):
+    """`fluxpart check` printed "start (stamps shifted by -0 min to interval starts)"
+    for a file of start stamps: a shift that is none. Now it says the stamps are
+    starts; middle and end stamps keep their shift (15 and 30 min of a 30-minute
+    record)."""
+    frame, report = read_table(_file(tmp_path / f"{marks}.csv", marks), columns=MAPPING,
+                               time_column="stamp", time_format="%Y-%m-%d %H:%M",
+                               time_marks=marks)
+    assert frame.index[0] == pd.Timestamp("2021-06-01 00:00")
+    lines = str(report).splitlines()
+    assert line in lines
+    assert not any("-0 min" in text for text in lines)
+
+
+def test_the_plateau_share_setting_names_the_classes_it_is_compared_with():
+    """The moving point test of Reichstein et al. (2005) (m) compares a u* class with
+    the mean of all classes above it; since issue 11 fluxpart compares it with the
+    classes above it within the top share that `ustar_plateau_reference` gives (0.25).
+    The report's settings table and help(Config) said "the mean of the classes above
+    it" for `ustar_plateau_share`, the published test, not the one run. Now the entry
+    names the reference share and its default, which the Config default must equal."""
+    from fluxpart.config import Config
+    from fluxpart.report import _config_notes
+
+    note = _config_notes()["ustar_plateau_share"]
+    assert "ustar_plateau_reference" in note
+    assert f"{Config().ustar_plateau_reference:g} by default" in note
+    assert "(m)" in note                               # still marked as recalled
