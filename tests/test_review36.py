@@ -66,3 +66,33 @@ def test_the_plateau_share_setting_names_the_classes_it_is_compared_with():
     assert "ustar_plateau_reference" in note
     assert f"{Config().ustar_plateau_reference:g} by default" in note
     assert "(m)" in note                               # still marked as recalled
+
+
+def test_the_readme_says_which_parquet_columns_the_netcdf_record_series_are(written_demo):
+    """A modeller reading `nee` from the Parquet time series (NEE as read, with gaps) and
+    from the NetCDF (gap-filled) got two different series under one name, and the README
+    did not say so. Checked: the NetCDF `nee` is the Parquet `nee_filled` converted to
+    carbon (1 µmol CO2 m-2 s-1 = 12.011e-9 kg C m-2 s-1, the standard atomic weight of
+    carbon, IUPAC 12.011 (m)), the drivers are their `*_filled` columns, and the README
+    names both."""
+    import re
+    from pathlib import Path
+
+    result, _ = written_demo
+    dataset = result.to_xarray()
+    series = result.timeseries
+    np.testing.assert_allclose(dataset["nee"].to_numpy(),
+                               series["nee_filled"].to_numpy() * 12.011e-9, rtol=1e-9)
+    assert np.isnan(series["nee"].to_numpy()).any()
+    assert not np.isnan(dataset["nee"].to_numpy()).any()
+    # the NetCDF's own units: VPD in Pa (1 hPa = 100 Pa, SI), the others as in Parquet
+    scale = {"rg": 1.0, "tair": 1.0, "vpd": 100.0, "tsoil": 1.0}
+    for driver, factor in scale.items():
+        assert dataset[driver].attrs["units"] == {"vpd": "Pa", "rg": "W m-2"}.get(driver, "degC")
+        np.testing.assert_allclose(dataset[driver].to_numpy(),
+                                   series[f"{driver}_filled"].to_numpy() * factor, rtol=1e-12)
+    readme = " ".join(Path(__file__).resolve().parents[1].joinpath("README.md")
+                      .read_text(encoding="utf-8").split())
+    assert re.search(r"the NetCDF `nee` is the Parquet `nee_filled`, not the Parquet `nee`",
+                     readme)
+    assert "`rg`, `tair`, `vpd` and `tsoil` are the `*_filled` columns" in readme
