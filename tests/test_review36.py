@@ -96,3 +96,33 @@ def test_the_readme_says_which_parquet_columns_the_netcdf_record_series_are(writ
     assert re.search(r"the NetCDF `nee` is the Parquet `nee_filled`, not the Parquet `nee`",
                      readme)
     assert "`rg`, `tair`, `vpd` and `tsoil` are the `*_filled` columns" in readme
+
+
+def test_a_notebook_shows_the_interval_and_the_caution_beside_the_sums(written_demo):
+    """Jupyter shows a `Result` by its `_repr_html_` (IPython's rich display protocol
+    (m)): it gave the annual sums alone, without NEE's 95 % interval or the caution
+    that every written result, report and export carries. Parsed here with the
+    standard library's `html.parser`: the interval's ends as the annual table holds
+    them, and the caution naming the crediting methodology and accredited
+    verification."""
+    from html.parser import HTMLParser
+
+    class Text(HTMLParser):
+        def __init__(self):
+            super().__init__()
+            self.parts = []
+
+        def handle_data(self, data):
+            self.parts.append(data)
+
+    result, _ = written_demo
+    parser = Text()
+    parser.feed(result._repr_html_())
+    text = " ".join(" ".join(parser.parts).split())
+    year = result.annual.index[0]
+    for column in ("nee", "nee_ci95_low", "nee_ci95_high"):
+        assert column in text
+        assert f"{result.annual.loc[year, column]:.1f}" in text
+    assert "systematic measurement errors not included" in text
+    assert "not a certified credit" in text
+    assert "applicable crediting methodology and by accredited verification" in text
