@@ -126,3 +126,36 @@ def test_a_notebook_shows_the_interval_and_the_caution_beside_the_sums(written_d
     assert "systematic measurement errors not included" in text
     assert "not a certified credit" in text
     assert "applicable crediting methodology and by accredited verification" in text
+
+
+def test_a_config_given_to_process_site_config_replaces_the_files_settings(tmp_path):
+    """`process_site_config(path, config)` runs with `config` alone: the file's
+    [processing] table (here `year_start = "07-01"`, budget years from 1 July) is not
+    merged into it, so a modeller who passed `Config(seed=...)` to change the seed lost
+    the file's budget year (or its declared events) without a word; the docstring did
+    not document `config` at all. Now it says so and how to change one setting
+    (`dataclasses.replace`, the standard library's copy of a frozen dataclass with some
+    fields changed). Known truth on the invented example site: a calendar year from
+    1 January without the file's setting, from 1 July with it."""
+    import dataclasses
+    import inspect
+
+    import fluxpart
+    from fluxpart import demo
+
+    toml = demo.write_example(tmp_path / "site")
+    toml.write_text(toml.read_text(encoding="utf-8").replace(
+        "[processing]\nseed = 0", '[processing]\nseed = 0\nyear_start = "07-01"'),
+        encoding="utf-8")
+    fast = {"ustar_bootstrap_draws": 0, "random_error_draws": 20}
+    import warnings
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", fluxpart.FluxpartWarning)
+        replaced = fluxpart.process_site_config(toml, fluxpart.Config(**fast))
+        kept = fluxpart.process_site_config(toml, dataclasses.replace(
+            fluxpart.Config.from_toml(toml), **fast))
+    assert replaced.annual["period_start"].iloc[0] == pd.Timestamp("2021-01-01")
+    assert kept.annual["period_start"].iloc[-1] == pd.Timestamp("2021-07-01")
+    doc = " ".join(inspect.getdoc(fluxpart.process_site_config).split())
+    assert "**replaces** that table whole, it is not merged" in doc
+    assert "dataclasses.replace(Config.from_toml(path), seed=3)" in doc
