@@ -159,3 +159,26 @@ def test_a_config_given_to_process_site_config_replaces_the_files_settings(tmp_p
     doc = " ".join(inspect.getdoc(fluxpart.process_site_config).split())
     assert "**replaces** that table whole, it is not merged" in doc
     assert "dataclasses.replace(Config.from_toml(path), seed=3)" in doc
+
+
+def test_a_frame_in_utc_is_told_how_to_give_its_index_the_zone():
+    """A modeller's frame stamped in UTC without a time zone (naive), at a site of
+    UTC+1: the clock check refuses it, rightly (Rg an hour before the sun: 15° of
+    Earth's turn per hour (m)), but its fixes spoke config-file words only
+    (`[input] time_zone = "UTC"`), which a frame has not; `fluxpart.process` converts
+    an index that carries its zone. Now the refusal names `tz_localize("UTC")`, and a
+    run from a config file (time_marks known) keeps its words."""
+    import fluxpart
+    from fluxpart import clock, demo
+    from fluxpart.errors import FluxpartError
+
+    frame, _ = demo.site_year(seed=0)
+    frame.index = frame.index - pd.Timedelta(hours=1)          # naive UTC of UTC+1 stamps
+    with pytest.raises(FluxpartError) as caught:
+        fluxpart.process(frame, demo.site(), fluxpart.Config(ustar_bootstrap_draws=0))
+    message = str(caught.value)
+    assert "earlier than the sun" in message
+    assert 'frame.index.tz_localize("UTC")' in message
+    text, offset = clock._fix(-60.0, 1.0, 30, "end", 30.0, 10.2)
+    assert '[input] time_zone = "UTC"' in text and "tz_localize" not in text
+    assert offset == 0.0
