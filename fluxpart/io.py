@@ -533,7 +533,10 @@ def read_config(path) -> tuple[pd.DataFrame, Site]:
     Parameters
     ----------
     path : str or path-like
-        The site config (DESIGN.md §4); its ``[input] path`` is relative to it.
+        The site config (TOML; its tables ``[site]``, ``[input]``, ``[input.columns]``,
+        ``[input.units]`` and ``[processing]`` as the README's "Your own site" and
+        "Logger files as they come" give them); its ``[input] path`` is relative to the
+        folder of the file as named.
 
     Returns
     -------

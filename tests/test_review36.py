@@ -182,3 +182,23 @@ def test_a_frame_in_utc_is_told_how_to_give_its_index_the_zone():
     text, offset = clock._fix(-60.0, 1.0, 30, "end", 30.0, 10.2)
     assert '[input] time_zone = "UTC"' in text and "tz_localize" not in text
     assert offset == 0.0
+
+
+def test_the_public_docstrings_point_to_documents_a_user_has():
+    """`help(fluxpart.read_config)` sent the reader to "DESIGN.md §4", a contributors'
+    design note that the repository and the installed package do not hold. Every public
+    name's docstring (`fluxpart.__all__`, the classes' public members; read with the
+    standard library's `inspect.getdoc`) now names only documents a user has, and
+    `read_config`'s names the README sections of the config."""
+    import inspect
+
+    import fluxpart
+
+    for name in fluxpart.__all__:
+        thing = getattr(fluxpart, name)
+        docs = [inspect.getdoc(thing) or ""]
+        if inspect.isclass(thing):
+            docs += [inspect.getdoc(member) or "" for attribute, member
+                     in inspect.getmembers(thing) if not attribute.startswith("_")]
+        assert not any("DESIGN.md" in doc for doc in docs), name
+    assert '"Your own site"' in inspect.getdoc(fluxpart.read_config)
