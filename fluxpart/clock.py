@@ -903,8 +903,11 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
         if offset == 0.0:
             # a logger kept on UTC: the zone setting reads it and keeps the output in the
             # site's local standard time, where utc_offset = 0 would move the output to UTC
+            # a frame has no [input]: its index given the zone is converted (review36)
+            frame = ("; a frame given to fluxpart.process: frame.index.tz_localize(\"UTC\"), "
+                     "an index in UTC is converted likewise" if time_marks is None else "")
             fixes.append(f"[input] time_zone = \"UTC\" (a logger kept on UTC; the output "
-                         f"stays in the site's UTC{utc_offset:+g} h)")
+                         f"stays in the site's UTC{utc_offset:+g} h{frame})")
     if time_marks is not None:
         shifts = {"start": 0.0, "middle": interval_minutes / 2.0, "end": float(interval_minutes)}
         for marks, applied in shifts.items():

@@ -70,7 +70,10 @@ class Config:
         al. (2005) (m).
     ustar_plateau_share : float
         The threshold is the first u* class whose mean night NEE reaches this share
-        of the mean of the classes above it; 0.99, Reichstein et al. (2005) (m).
+        of the mean of the classes it is compared with: those above it within the
+        top share of the u* classes that ``ustar_plateau_reference`` gives (0.25 by
+        default; all classes above it with 1, the published test); 0.99, Reichstein
+        et al. (2005) (m).
     ustar_correlation_limit : float
         Temperature classes are used only where |r(u*, T)| is below this; 0.4,
         Papale et al. (2006) (m).

@@ -319,8 +319,10 @@ class ReadReport:
             lines.append("encoding          " + ", ".join(sorted(set(self.encodings))))
         lines += [
             f"interval          {self.interval_minutes} min",
-            f"time marks        {self.time_marks} (stamps shifted by -{self.shift_minutes:g} min "
-            "to interval starts)",
+            # start stamps are not shifted: "shifted by -0 min" read as a shift (review36)
+            f"time marks        {self.time_marks} "
+            + (f"(stamps shifted by -{self.shift_minutes:g} min to interval starts)"
+               if self.shift_minutes else "(stamps are interval starts, not shifted)"),
         ]
         conversions = _conversion_text(self.stamp_conversions)
         if conversions:
@@ -531,7 +533,10 @@ def read_config(path) -> tuple[pd.DataFrame, Site]:
     Parameters
     ----------
     path : str or path-like
-        The site config (DESIGN.md §4); its ``[input] path`` is relative to it.
+        The site config (TOML; its tables ``[site]``, ``[input]``, ``[input.columns]``,
+        ``[input.units]`` and ``[processing]`` as the README's "Your own site" and
+        "Logger files as they come" give them); its ``[input] path`` is relative to the
+        folder of the file as named.
 
     Returns
     -------

@@ -262,9 +262,32 @@ def process_site_config(path, config: Config | None = None, *, progress=None,
 
     The input file's path and SHA-256 and the config file's path, SHA-256 and
     full text are recorded in the result's provenance (and so in
-    ``manifest.json``). `input_path` (a path, or a list of paths for several
-    files), when given, replaces the config's ``[input] path`` (an auditor's
-    moved copy of the input).
+    ``manifest.json``), so that ``fluxpart verify`` can rerun the written folder.
+
+    Parameters
+    ----------
+    path : str or path-like
+        The site config (TOML); its ``[input] path`` is relative to its folder.
+    config : Config, optional
+        The settings of the run. Omitted: the file's ``[processing]`` table
+        (:meth:`Config.from_toml`). Given, it **replaces** that table whole, it is not
+        merged with it: its ``events``, ``year_start`` and every other setting are its
+        own. To change one setting of the file's, give
+        ``dataclasses.replace(Config.from_toml(path), seed=3)``.
+    progress : callable, optional
+        As for :func:`process`.
+    input_path : str, path-like or list, optional
+        Replaces the config's ``[input] path`` (an auditor's moved copy of the input;
+        a list for several files).
+
+    Returns
+    -------
+    Result
+        As :func:`process` returns it, with the input's provenance.
+
+    References
+    ----------
+    FIPS 180-4, Secure Hash Standard (SHA-256, the hashes recorded) (m).
     """
     import hashlib
 

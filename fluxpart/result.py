@@ -86,15 +86,25 @@ class Result:
                 f"years {years or 'none'}, {len(self.warnings)} warning(s)>")
 
     def _repr_html_(self) -> str:
+        """A notebook's view: the annual sums with NEE's stated 95 % interval, the
+        warnings and the caution every written result carries (a notebook showed the
+        sums alone before review36: numbers an auditor could take for a credit)."""
         import html
 
-        columns = [c for c in ("nee", "gpp_nighttime", "gpp_daytime", "reco_nighttime",
-                               "reco_daytime", "share_measured") if c in self.annual.columns]
+        from .manifest import CAUTION
+
+        columns = [c for c in ("nee", "nee_ci95_low", "nee_ci95_high", "gpp_nighttime",
+                               "gpp_daytime", "reco_nighttime", "reco_daytime",
+                               "share_measured") if c in self.annual.columns]
         table = self.annual[columns].to_html(float_format=lambda v: f"{v:.1f}")
+        interval = ("; nee_ci95_low / nee_ci95_high: the stated 95 % interval of NEE, "
+                    "systematic measurement errors not included"
+                    if "nee_ci95_low" in columns else "")
         notes = "".join(f"<li>{html.escape(text)}</li>" for text in self.warnings)
         return (f"<p><b>fluxpart.Result</b> {html.escape(self.site.name)}: "
-                f"{len(self.timeseries)} records; annual sums [g C m-2]</p>{table}"
-                + (f"<ul>{notes}</ul>" if notes else ""))
+                f"{len(self.timeseries)} records; annual sums [g C m-2]{interval}</p>{table}"
+                + (f"<ul>{notes}</ul>" if notes else "")
+                + f"<p><i>Caution.</i> {html.escape(CAUTION)}</p>")
 
     def to_xarray(self):
         """Return the record (30 or 60 min), daily, monthly and annual series as a CF-1.10

@@ -17,6 +17,7 @@ import pandas as pd
 
 from ._groups import group_positions
 from .column_faults import _correlation as _paired_correlation
+from .measured_months import month_runs_text
 from .variables import vpd_from_rh
 
 __all__ = ["vpd_exchanged_in_months"]
@@ -103,14 +104,16 @@ def vpd_exchanged_in_months(tair, rh, vpd, others: dict, stamps,
         for name, values in others.items():
             values = np.asarray(values, dtype=float)
             if _correlation(values[rows], implied[rows]) > _FOLLOWS:
-                exchanged.setdefault(name, []).append(str(label))
+                exchanged.setdefault(name, []).append(label)
                 break
     if not follows_somewhere or not exchanged:
         return None
     names = {**{"vpd": "vpd", "rh": "rh", "tair": "tair"}, **(columns or {})}
     name, periods = max(exchanged.items(), key=lambda item: len(item[1]))
     other = names.get(name, name)
-    shown = periods[0] if len(periods) == 1 else f"{periods[0]} .. {periods[-1]}"
+    # runs of consecutive months, so that March and September are not shown as the run
+    # from March to September (review36; as rg_dim's months since the final reread)
+    shown = month_runs_text(periods)
     return (f"VPD (column {names['vpd']!r}) does not follow the VPD that RH "
             f"({names['rh']!r}) and air temperature ({names['tair']!r}) imply in "
             f"{len(periods)} month(s) ({shown}), while column {other!r} ({name}) does, "

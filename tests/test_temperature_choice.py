@@ -469,3 +469,25 @@ def test_a_choice_that_weak_evidence_can_flip_keeps_the_other_temperature_in_the
         assert z * np.sqrt(not_chosen) >= 1.0, (delta, not_chosen)
     # beyond strong evidence the interval need not reach the other temperature
     assert z * np.sqrt(bic_weight(STRONG_EVIDENCE_BIC)) < 1.0
+
+
+def test_a_failed_soil_temperature_fit_does_not_advise_a_fallback_the_run_does_not_need():
+    """Known truth on invented weather: respiration planted on air temperature (Lloyd &
+    Taylor 1994 eq. 11 above) and a soil probe in a deep, thermally buffered layer that
+    holds one temperature (0.1 K of diel swing), so no 15-day window spans the 5 K the
+    E0 acceptance asks (Reichstein et al. 2005 (m)). The soil fit fails, air temperature
+    is fitted and used: the reason gives the soil fit's facts, not the whole-run error's
+    advice to set e0_fallback, which would replace a fitted E0 the run has (review36:
+    two of 20 generated clean site-years carried that advice in their warning)."""
+    rng, index, tair, _, is_night = _weather(seed=2, days=90)
+    hour = index.hour.to_numpy() + index.minute.to_numpy() / 60.0
+    deep_soil = 8.0 + 0.05 * np.sin(2 * np.pi * (hour - 15.0) / 24.0)
+    nee = _night_nee(rng, index, tair, is_night)
+    choice = choose_respiration_temperature(index, nee, tair, deep_soil, is_night)
+    assert choice.driver == "tair"
+    assert choice.reason.startswith("the soil-temperature fit failed (E0 for year 2021: "
+                                    "no acceptable Lloyd–Taylor window")
+    assert "temperature range below 5 K" in choice.reason
+    assert "e0_fallback" not in choice.reason
+    assert "cannot estimate" not in choice.reason
+    assert choice.reason.endswith("))")

@@ -44,7 +44,7 @@ def test_vpd_and_ustar_exchanged_from_july_are_named():
                                    {"ustar": written_ustar, "tsoil": others["tsoil"]},
                                    stamps, {"vpd": "VPD", "ustar": "USTAR"})
     assert text is not None
-    assert "6 month(s) (2021-07 .. 2021-12)" in text and "'USTAR' (ustar)" in text
+    assert "6 month(s) (2021-07 to 2021-12)" in text and "'USTAR' (ustar)" in text
 
 
 def test_vpd_and_soil_temperature_exchanged_for_a_month_are_named():
@@ -79,3 +79,20 @@ def test_months_too_short_to_judge_name_nothing():
     written[week] = others["ustar"][week]
     present = np.where((stamps.month == 8) & ~week, np.nan, 1.0)   # only the week in August
     assert vpd_exchanged_in_months(tair * present, rh, written, others, stamps) is None
+
+
+def test_months_apart_are_not_shown_as_one_run():
+    """Known truth: VPD and u* exchanged in March and in September only (a logger program
+    changed twice and changed back); the message names the two months, not the run from
+    March to September, whose five months between were written right (review36: shown
+    as "2021-03 .. 2021-09" before). Months written as ISO 8601 YYYY-MM (m)."""
+    stamps, tair, rh, vpd, others = _year(11)
+    months = (stamps.month == 3) | (stamps.month == 9)
+    written_vpd, written_ustar = vpd.copy(), others["ustar"].copy()
+    written_vpd[months] = others["ustar"][months]
+    written_ustar[months] = vpd[months] / 10
+    text = vpd_exchanged_in_months(tair, rh, written_vpd,
+                                   {"ustar": written_ustar, "tsoil": others["tsoil"]}, stamps)
+    assert text is not None
+    assert "2 month(s) (2021-03, 2021-09)" in text
+    assert ".." not in text and "2021-03 to 2021-09" not in text

@@ -1090,9 +1090,38 @@ def _no_e0_message(year: int, night_records: int, candidates: pd.DataFrame) -> s
     detail = "; ".join(f"{reason}: {count}" for reason, count in sorted(reasons.items()))
     return (f"E0 for year {year}: no acceptable Lloyd–Taylor window ({records} in the year, "
             f"{len(candidates)} windows tried; rejected because {detail or 'no window'}). "
-            "Nighttime partitioning cannot estimate the temperature sensitivity from these "
-            "data. Set e0_fallback (a fixed E0 in K, in [processing]) to use a flagged "
-            "fall-back value for such years, or supply more measured night NEE.")
+            + NO_E0_ADVICE)
+
+
+#: The closing sentences of the error of a year without an acceptable E0 window: true
+#: where the run's own temperature fails; a caller that fits another temperature instead
+#: (``temperature_choice``: soil temperature failed, air temperature fitted) strips them
+#: with :func:`without_no_e0_advice`, as the run then needs no ``e0_fallback``.
+NO_E0_ADVICE = ("Nighttime partitioning cannot estimate the temperature sensitivity from "
+                "these data. Set e0_fallback (a fixed E0 in K, in [processing]) to use a "
+                "flagged fall-back value for such years, or supply more measured night NEE.")
+
+
+def without_no_e0_advice(text: str) -> str:
+    """`text` without the closing advice of :func:`_no_e0_message` (unchanged otherwise).
+
+    Parameters
+    ----------
+    text : str
+        An error message, e.g. ``str(InsufficientDataError)``.
+
+    Returns
+    -------
+    str
+        The message's facts (which year, how many night records and windows, why each
+        window was rejected), ending in a full stop.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005). Global Change Biology 11, 1424–1439 (the window
+    acceptance the facts report).
+    """
+    return text.removesuffix(NO_E0_ADVICE).rstrip()
 
 
 # --------------------------------------------------------------------------- #

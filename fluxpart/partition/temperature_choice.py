@@ -61,7 +61,7 @@ import numpy as np
 
 from ..errors import InsufficientDataError
 from ..uncertainty import bic_weight, effective_records, laplace_delta_bic
-from .nighttime import partition_nighttime
+from .nighttime import partition_nighttime, without_no_e0_advice
 
 _DEFAULT_E0_BOUNDS = (30.0, 450.0)   # partition_nighttime's default e0_bounds [K]
 
@@ -241,7 +241,10 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     try:
         fits["tsoil"] = _night_fit(index, nee, tsoil, night, "tsoil", nighttime_settings)
     except InsufficientDataError as error:
-        return TemperatureChoice("tair", f"the soil-temperature fit failed ({error})",
+        # the run goes on with air temperature: the error's advice (set e0_fallback) is
+        # for a run that cannot fit at all, and would mislead here (review36)
+        failure = without_no_e0_advice(str(error)).removesuffix(".")
+        return TemperatureChoice("tair", f"the soil-temperature fit failed ({failure})",
                                  {"tair": np.nan, "tsoil": np.nan}, 0, np.nan, np.nan, fits)
     reco = {name: fit.reco for name, fit in fits.items()}
     bounds = nighttime_settings.get("e0_bounds", _DEFAULT_E0_BOUNDS)
