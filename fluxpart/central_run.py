@@ -230,7 +230,7 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
     Lloyd, J. and Taylor, J. A. (1994). On the temperature dependence of soil
     respiration. Functional Ecology 8, 315-323.
     """
-    frame, screened, filled_drivers, _, is_night = inputs
+    frame, screened, filled_drivers, _, is_night = inputs[:5]
     temperature, delay = driver.temperature, driver.delay
     # the nighttime method's central Reco averaged over the two respiration forms; the
     # same per-record shift in every u* run keeps their spread the threshold's alone

@@ -14,11 +14,17 @@ import numpy as np
 from . import gapfill
 from .partition import temperature_choice
 
+#: ``Config.gapfill_donors`` value: separate day and night donors, and a night gap in
+#: darkness filled from dark night records first (:func:`fluxpart.gapfill.fill_marginal`'s
+#: ``sun_up``).
+DARK_FIRST = "dark_first"
+
 #: The respiration temperature a run does not use, of the one it uses.
 OTHER_TEMPERATURE = {"tair": "tsoil", "tsoil": "tair"}
 
 
-def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, values_only=False):
+def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, values_only=False,
+             sun_up=None):
     """MDS gap filling of NEE with the configured settings (also scored on artificial gaps).
 
     Parameters
@@ -39,6 +45,10 @@ def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, value
     values_only : bool, optional
         The filled values as an array (:func:`fluxpart.gapfill.fill_marginal_values`)
         instead of the fill's table.
+    sun_up : numpy.ndarray of bool, optional
+        The sun above the horizon in the record: with ``gapfill_donors =
+        "dark_first"``, night gaps in darkness take dark donors first
+        (:func:`fluxpart.gapfill.fill_marginal`); ignored otherwise.
 
     Returns
     -------
@@ -53,15 +63,18 @@ def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, value
     (Appendix A: marginal distribution sampling).
     """
     fill = gapfill.fill_marginal_values if values_only else gapfill.fill_marginal
+    dark_first = config.gapfill_donors == DARK_FIRST
     return fill(
-        nee_measured, conditions, index, is_night=is_night, donors=config.gapfill_donors,
+        nee_measured, conditions, index, is_night=is_night,
+        donors="separate_day_night" if dark_first else config.gapfill_donors,
         rg_tolerance=config.rg_tolerance, tair_tolerance=config.tair_tolerance,
         vpd_tolerance=config.vpd_tolerance, max_window_days=config.gapfill_max_window_days,
         min_donors=config.gapfill_min_donors, gaps=gaps, rg_window=config.gapfill_rg_window,
         night_rg_threshold=config.night_rg_threshold,
         clearness=conditions["clearness"] if "clearness" in conditions else None,
         clearness_tolerance=config.gapfill_clearness_tolerance,
-        estimate=config.gapfill_estimate, breaks=gapfill.event_breaks(index, config.events))
+        estimate=config.gapfill_estimate, breaks=gapfill.event_breaks(index, config.events),
+        sun_up=sun_up if dark_first else None)
 
 
 def nighttime_settings(config, rg, index, nearest_year=False) -> dict:

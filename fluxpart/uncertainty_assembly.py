@@ -35,7 +35,8 @@ from .partition import nighttime, temperature_choice
 
 def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions,
                        is_night, night, day, temperature, interval, config, year_keys,
-                       night_fits, error_model=None, form=None, delay=0, day_evidence=None):
+                       night_fits, error_model=None, form=None, delay=0, day_evidence=None,
+                       sun_up=None):
     """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals.
 
     Parameters
@@ -75,6 +76,9 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
     day_evidence : tuple, optional
         (statistic, other temperature's name) of
         :func:`fluxpart.central_run.daytime_driver_evidence`.
+    sun_up : numpy.ndarray of bool, optional
+        The sun above the horizon in the record, for the fills of the artificial and
+        the long gaps as the central fill (:func:`fluxpart.method_settings.fill_nee`).
 
     Returns
     -------
@@ -109,7 +113,7 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
         nee_measured, noise, is_night,
         lambda values, hidden: fill_nee(values, conditions.mask(hidden), index, is_night,
                                         config, gaps=measured & np.isnan(values),
-                                        values_only=True),
+                                        values_only=True, sun_up=sun_up),
         seed=uncertainty.artificial_gap_seed(nee_measured), records_per_day=24 * 60 // interval,
         conditions_missing=conditions.isna().to_numpy())
     gapfill_model = uncertainty.gapfill_error_model(gap_errors)
@@ -118,7 +122,7 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
         nee_measured, *gap_sides.long_gaps(~measured, 24 * 60 // interval,
                                            breaks=gapfill.event_breaks(index, config.events)),
         lambda values, gaps: fill_nee(values, conditions, index, is_night, config,
-                                      gaps=gaps, values_only=True))
+                                      gaps=gaps, values_only=True, sun_up=sun_up))
     runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
                                 "reco_nighttime": n.reco, "gpp_daytime": d.gpp,
                                 "reco_daytime": d.reco}, index=index)
@@ -323,7 +327,7 @@ def uncertainty_stage(timeseries, budgets, central, inputs, driver, interval, co
         budgets.daily, budgets.monthly, budgets.annual, timeseries, central.outcomes, sigma,
         inputs.conditions, inputs.is_night, night, day, driver.temperature, interval, config,
         year_keys, driver.night_fits, error_model, central.form, driver.delay,
-        central.day_evidence)
+        central.day_evidence, inputs.sun_up)
     warnings.extend(driver_notes)
     parameters["gapfill_error_model"] = gapfill_model
     # a method that could not fit has no sums, so no uncertainty of them either

@@ -43,6 +43,9 @@ class RunInputs(NamedTuple):
         The drivers the NEE fill compares (:func:`fluxpart.gapfill.driver_conditions`).
     is_night : numpy.ndarray of bool
         The night mask.
+    sun_up : numpy.ndarray of bool or None
+        The sun above the horizon in the record (potential radiation above 0): night
+        gaps in darkness take dark donors first (:func:`fluxpart.gapfill.fill_marginal`).
     """
 
     frame: pd.DataFrame
@@ -50,6 +53,7 @@ class RunInputs(NamedTuple):
     filled_drivers: pd.DataFrame
     conditions: pd.DataFrame
     is_night: np.ndarray
+    sun_up: np.ndarray | None = None
 
 
 def run_inputs(frame, screened, is_night, potential_radiation, config) -> RunInputs:
@@ -81,7 +85,9 @@ def run_inputs(frame, screened, is_night, potential_radiation, config) -> RunInp
     if config.gapfill_clearness_tolerance > 0:
         conditions["clearness"] = gapfill.clearness_index(
             conditions["rg"].to_numpy(), potential_radiation)
-    return RunInputs(frame, screened, filled_drivers, conditions, is_night)
+    # the sun above the horizon for part of the record, as solar.night_mask's epsilon
+    sun_up = np.asarray(potential_radiation, dtype=np.float64) > 1e-6
+    return RunInputs(frame, screened, filled_drivers, conditions, is_night, sun_up)
 
 
 class RunOutcome(NamedTuple):
@@ -111,7 +117,7 @@ class RunOutcome(NamedTuple):
 
 def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
                        temperature, config, curvature, night_fit=None, central_fill=None,
-                       delay=0, skip=(), nearest_year=False):
+                       delay=0, skip=(), nearest_year=False, sun_up=None):
     """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
 
     The central run lets one method that cannot fit be NaN and tries the nearest
@@ -142,6 +148,8 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
     nearest_year : bool, optional
         The nighttime E0 of a year without one from the nearest year (the central
         run's choice), for a u* scenario.
+    sun_up : numpy.ndarray of bool, optional
+        :attr:`RunInputs.sun_up` (dark donors for night gaps in darkness first).
 
     Returns
     -------
@@ -157,16 +165,18 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
     """
     too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
     nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
-    if central_fill is not None and config.gapfill_donors == "separate_day_night":
+    if central_fill is not None and config.gapfill_donors in ("separate_day_night",
+                                                              "dark_first"):
         # the u* filter removes night records only, and day gaps take day donors only:
         # the day records of every u* scenario are those of the central fill
         night_fill = fill_nee(nee_measured, conditions, frame.index, is_night, config,
-                              gaps=is_night)
+                              gaps=is_night, sun_up=sun_up)
         filled = pd.DataFrame({column: np.where(is_night, night_fill[column].to_numpy(),
                                                 central_fill[column].to_numpy())
                                for column in night_fill.columns}, index=night_fill.index)
     else:
-        filled = fill_nee(nee_measured, conditions, frame.index, is_night, config)
+        filled = fill_nee(nee_measured, conditions, frame.index, is_night, config,
+                          sun_up=sun_up)
     temperature_filled = respiration_temperature(filled_drivers, temperature, delay, True)
 
     def fit_nighttime(borrow):
@@ -335,9 +345,10 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
     for name, threshold in runs.items():
         try:
             *outcome, errors = fill_and_partition(
-                *arguments, threshold, temperature, config, curvature,
+                *arguments[:5], threshold, temperature, config, curvature,
                 night_fit if name == "central" else None,
-                None if name == "central" else outcomes["central"][2], delay, skip, borrowed)
+                None if name == "central" else outcomes["central"][2], delay, skip, borrowed,
+                sun_up=arguments.sun_up)
             outcomes[name] = RunOutcome(*outcome)
             if name == "central":
                 skip = tuple(errors)
