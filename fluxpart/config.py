@@ -162,7 +162,7 @@ class Config:
         similarity tolerances, the single rule of Reichstein et al. (2005), under
         which twilight records with photosynthesis fill night gaps and bias annual
         NEE low (median −17.0 g C m-2 on demo seeds 0–5, `bench_gapfill.py --accuracy`).
-        ``"dark_first"`` (branch nee17): as ``"separate_day_night"``, and a night gap
+        ``"dark_first"`` (new in 0.27.0): as ``"separate_day_night"``, and a night gap
         with the sun below the horizon is filled from night records with the sun below
         the horizon wherever a pass of quality A or B finds enough of them, since the
         night class (Rg below ``night_rg_threshold``) holds twilight records whose
@@ -172,7 +172,7 @@ class Config:
         of +1.0 g C m-2 (up to +7.3 where twilight records were 6–10 % of the night
         donors), the mean error −5.9 → −4.9; on the three generated benchmarks by
         +0.2 to +0.5, where the mean error was already positive (DEVELOPERS.md,
-        branch nee17): not the default.
+        0.27.0 changelog): not the default.
     gapfill_rg_window : str
         The radiation window of the NEE gap-filling similarity steps.
         ``"centred"`` (default, new in 0.8.0): with separate day and night donors,

@@ -1414,12 +1414,12 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
     Night is Rg below ``night_rg_threshold``, so the night class holds twilight records
     with the sun up whose canopy takes up CO2 in the little light there is. With
     ``sun_up``, a gap in darkness takes dark donors first (:func:`_dark_first`; new in
-    branch nee17, the pipeline's ``gapfill_donors = "dark_first"``, not the default). On
+    0.27.0, the pipeline's ``gapfill_donors = "dark_first"``, not the default). On
     nine independent known-truth trials (107 invented site-years) the part of the filled
     dark nights' error that the donors' own conditions cause (their fill of the true NEE
     of the same records) had a median of −1.2 g C m-2 a year, −0.15 without twilight
     donors; with dark donors first annual NEE moved by a median of +1.0 g C m-2, on the
-    generated benchmarks by +0.2 to +0.5 (DEVELOPERS.md, branch nee17).
+    generated benchmarks by +0.2 to +0.5 (DEVELOPERS.md, 0.27.0 changelog).
 
     References
     ----------
