@@ -60,6 +60,7 @@ from ._validate import (
     refuse_binary,
     unicode_form_hint,
 )
+from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
 from .comma_fields import field_count, unquoted_decimal_commas
 from .config import Config, setting_text, suggest_key
 from .errors import (
@@ -140,7 +141,8 @@ _TOP_LEVEL_KEYS = ("input", "processing", "site")
 _SITE_KEYS = ("canopy", "latitude", "longitude", "name", "utc_offset")
 _SITE_REQUIRED = ("name", "latitude", "longitude", "utc_offset")
 _INPUT_KEYS = ("accept_units", "columns", "decimal", "delimiter", "encoding", "flag_accept",
-               "interval_minutes", "missing", "path", "rows_after_header",
+               "interval_minutes", "missing", "missing_by_variable", "path",
+               "rows_after_header",
                "rows_before_header", "time_column", "time_format", "time_marks", "time_zone",
                "units")
 _INPUT_REQUIRED = ("path", "time_column", "time_format", "time_marks", "columns")
@@ -452,6 +454,9 @@ class SiteConfig:
         Site-flag values that keep a record.
     accept_units : tuple of str
         Variables whose unit checks only warn.
+    missing_by_variable : dict
+        Canonical name -> codes meaning "no value" in that variable's column only, beside
+        `missing` (``[input.missing_by_variable]``).
     """
 
     site: Site
@@ -473,6 +478,7 @@ class SiteConfig:
     time_zone: str | None = None
     flag_accept: tuple = _DEFAULT_FLAG_ACCEPT
     accept_units: tuple = ()
+    missing_by_variable: dict = field(default_factory=dict)
 
     @property
     def input_path(self) -> Path:
@@ -522,7 +528,8 @@ class SiteConfig:
                 "rows_before_header": self.rows_before_header,
                 "rows_after_header": self.rows_after_header, "time_zone": self.time_zone,
                 "flag_accept": self.flag_accept, "accept_units": self.accept_units,
-                "site": self.site}
+                "site": self.site} | ({"missing_by_variable": dict(self.missing_by_variable)}
+                                      if self.missing_by_variable else {})
 
 
 def read_config(path) -> tuple[pd.DataFrame, Site]:
@@ -656,6 +663,8 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
         flag_accept=_check_flag_accept(input_table.get("flag_accept",
                                                        list(_DEFAULT_FLAG_ACCEPT))),
         accept_units=_check_accept_units(input_table.get("accept_units", [])),
+        missing_by_variable=_check_missing_by_variable(
+            input_table.get("missing_by_variable", {}), columns),
     )
 
 
@@ -663,7 +672,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                missing=_DEFAULT_MISSING, delimiter=",", interval_minutes=None, decimal=".",
                encoding=None, rows_before_header=0, rows_after_header=0, time_zone=None,
                flag_accept=_DEFAULT_FLAG_ACCEPT, accept_units=(), site=None,
-               unit_problems="refuse"):
+               unit_problems="refuse", missing_by_variable=None):
     """Read delimited files of tower records into the canonical frame.
 
     Parameters
@@ -719,6 +728,12 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         ImplausibleValueError (default), or go into ``report.unit_refusals`` and
         ``report.warnings`` with the values kept as declared (for a preflight that
         lists every problem).
+    missing_by_variable : dict, optional
+        Canonical name -> codes meaning "no value" in that variable's column only, beside
+        `missing`. A numeric code of `missing` that is an ordinary reading of a column
+        (0 in Rg at night, a freezing-point temperature) is refused naming both readings
+        (:func:`fluxpart.code_values.ordinary_code_message`); this setting says which
+        columns it is meant for.
 
     Returns
     -------
@@ -799,6 +814,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     flag_accept = _check_flag_accept(flag_accept)
     flag_missing, exempted = _flag_missing_codes(missing, flag_accept)
     accept_units = _check_accept_units(accept_units)
+    missing_by_variable = _check_missing_by_variable(missing_by_variable or {}, columns)
     if unit_problems not in ("refuse", "report"):
         raise ConfigError(f"unit_problems = {unit_problems!r}: expected 'refuse' or 'report'")
     preflight: list[str] | None = [] if unit_problems == "report" else None
@@ -831,7 +847,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               rows_after_header=rows_after_header, time_zone=time_zone,
                               utc_offset=utc_offset, warnings=warnings,
                               may_lack=len(paths) > 1, flag_missing=flag_missing,
-                              time_marks=time_marks)
+                              time_marks=time_marks, site=site,
+                              missing_by_variable=missing_by_variable)
         except _EmptyFileError as error:
             # one of several files without records (a logger file opened at a power cut):
             # it holds nothing to read, so the others are read and it is named
@@ -1559,6 +1576,59 @@ def _flag_missing_codes(missing: tuple, flag_accept: tuple) -> tuple[tuple, list
     kept = tuple(code for code in missing if number(code) not in accepted)
     left_out = sorted({number(code) for code in missing} & accepted)
     return kept, left_out
+
+
+def _check_missing_by_variable(value, columns) -> dict:
+    """``[input.missing_by_variable]``: canonical name -> codes of that column only."""
+    if not isinstance(value, dict):
+        raise ConfigError(f"[input] missing_by_variable = {setting_text(value)}: expected a "
+                          "table of canonical names and code lists, e.g. "
+                          "[input.missing_by_variable] nee = [0]")
+    checked = {}
+    for name, codes in value.items():
+        if name not in READER_VARIABLES or name == "nee_flag":
+            raise ConfigError(f"[input.missing_by_variable] {name}: expected a canonical "
+                              f"variable ({', '.join(v for v in READER_VARIABLES if v != 'nee_flag')})")
+        if not isinstance(codes, (list, tuple)):
+            codes = [codes]
+        try:
+            checked[name] = _check_missing(list(codes))
+        except ConfigError:
+            raise ConfigError(f"[input.missing_by_variable] {name} = {setting_text(codes)}: "
+                              f"expected a list of codes, e.g. {name} = [0]") from None
+    return checked
+
+
+def _refuse_ordinary_code(text, column, name, codes, judged, decimal, source, lines,
+                          comma_file, stamps, time_marks, site, explicit=()) -> None:
+    """Refuse a numeric missing code of ``[input] missing`` that is an ordinary reading of
+    this column (:func:`fluxpart.code_values.ordinary_code_message`). Run only where
+    `missing` holds a code of magnitude below
+    :data:`~fluxpart.code_values.JUDGED_MAGNITUDE`, so other reads are unchanged; a code
+    also listed for this column in `explicit` (``[input.missing_by_variable]``) is meant
+    for it and not judged."""
+    def number(code):
+        found = _numeric_codes((code,), decimal)
+        return found[0] if found else None
+
+    judged = [code for code in judged if code not in {number(c) for c in explicit}]
+    if not judged:
+        return
+    kept = tuple(c for c in codes if number(c) not in judged)
+    written, _, _ = _numbers(text, column, name, kept, decimal, source, lines, comma_file)
+    night = None
+    if name in ("rg", "ppfd") and site is not None and len(stamps) > 1:
+        index = pd.DatetimeIndex(stamps)
+        seconds = index.values.astype("datetime64[s]").astype(np.int64)
+        spacing = float(np.median(np.diff(seconds))) / 60.0
+        minutes = int(round(spacing)) if 1 <= spacing <= 1440 else 30
+        shift = {"start": 0.0, "middle": minutes / 2, "end": float(minutes)}.get(time_marks, 0.0)
+        potential = _potential(index - pd.Timedelta(minutes=shift), site, minutes)
+        night = np.asarray(potential) < NIGHT_POTENTIAL
+    for code in judged:
+        message = ordinary_code_message(name, column, code, written, night, source)
+        if message:
+            raise ConfigError(message)
 
 
 def _check_accept_units(value) -> tuple:
@@ -2848,7 +2918,7 @@ _ISO_WITHOUT_OFFSETS = "%Y-%m-%dT%H:%M:%S"
 def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_format, missing,
                delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
                utc_offset, warnings, may_lack=False, flag_missing=None,
-               time_marks=None) -> dict:
+               time_marks=None, site=None, missing_by_variable=None) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column.
 
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
@@ -2917,10 +2987,18 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     comma_file = decimal == "," and any(
         raw[column].str.contains(",", regex=False).any() for column in read.values())
     flag_keys = {_flag_key(column) for column in flag_columns}
+    missing_by_variable = missing_by_variable or {}
+    judged = tuple(code for code in _numeric_codes(missing, decimal)
+                   if math.isfinite(code) and abs(code) < JUDGED_MAGNITUDE)
     for name, column in read.items():
         codes = flag_missing if (flag_missing is not None and name in flag_keys) else missing
+        codes = tuple(codes) + tuple(missing_by_variable.get(name, ()))
         numbers, n_missing, absurd = _numbers(raw[column], column, name, codes, decimal,
                                               source, lines, comma_file)
+        if judged and name not in flag_keys:
+            _refuse_ordinary_code(raw[column], column, name, codes, judged, decimal, source,
+                                  lines, comma_file, parsed.stamps, time_marks, site,
+                                  missing_by_variable.get(name, ()))
         values[name], missing_cells[name], nonfinite[name] = numbers, n_missing, int(absurd.sum())
         if absurd.any():
             warnings.append(f"column {column!r} ({name.split(':')[0]}): {int(absurd.sum())} "
