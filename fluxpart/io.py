@@ -187,6 +187,11 @@ _NUMBER_WITH_UNIT = re.compile(
 #: a suspect, edited or estimated value (common practice), and two numbers in one cell
 #: joined by "|", "/" or "_" ("0.329|0": a value and its quality flag).
 _MARKED_NUMBER = re.compile(r"([+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?)\s*([*?!#~^]+)")
+#: A number followed by a comment: a comment mark ("#", "//", ";", "!") and words after it
+#: ("11.74 # sensor cleaned"), as a logger program's or an editor's note at the end of a
+#: line is written (common practice); the words hold a letter.
+_COMMENTED_NUMBER = re.compile(
+    r"([+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?)\s*((?:#|//|;|!)\s*\S*[A-Za-z].*)")
 _TWO_NUMBERS = re.compile(
     r"([+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?)\s*([|/_])\s*"
     r"[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?")
@@ -2277,7 +2282,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
         return _read_text(path, "\n".join(text_lines[:number]) + "\n", delimiter,
                           rows_before_header, rows_after_header, warnings)
     first_line = rows_before_header + rows_after_header + 2
-    raw = _trailing_fields(path, raw, first_line)
+    raw = _trailing_fields(path, raw, first_line, delimiter)
     blank = _blank_rows(raw)
     lines = _record_lines(text, first_line, len(raw), delimiter)
     raw = raw.loc[~blank].reset_index(drop=True)
@@ -2296,6 +2301,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
         raw = raw.iloc[:, :named]
         header = header[:named]
     if raw.empty:
+        _refuse_unicode_line_ends(path, text)
         skipped_after = (f" after the {rows_after_header} line(s) of rows_after_header"
                          if rows_after_header else "")
         raise _EmptyFileError(f"input file {str(path)!r} has a header but no records"
@@ -2309,6 +2315,22 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
 #: columns (Excel's specification and limits since Excel 2007 (m)), eddy-covariance
 #: programs' full outputs a few hundred
 _MAX_HEADER_FIELDS = 16384
+
+
+def _refuse_unicode_line_ends(path: Path, text: str) -> None:
+    """Raise where the lines end in Unicode's NEXT LINE or LINE/PARAGRAPH SEPARATOR (a
+    mainframe's EBCDIC newline converted, a word processor's line break; Unicode Standard,
+    section 5.8 (m)) and in no line break, which the table parser takes for one line
+    (layouts31: named "a header but no records", or a header too wide)."""
+    inner = text.rstrip("\r\n")
+    if "\n" in inner or "\r" in inner:
+        return
+    count, mark = max((text.count(mark), mark) for mark in ("\x85", "\u2028", "\u2029"))
+    if count >= 2:
+        raise InputFileError(
+            f"input file {str(path)!r}: its {count} lines end in U+{ord(mark):04X} "
+            f"{unicodedata.name(mark, 'NEXT LINE')}, not in a line break (LF or CRLF), so "
+            "it reads as one line: convert the line ends to LF in a copy of the file")
 
 
 def _refuse_wide_header(path: Path, text: str, delimiter: str, rows_before_header: int
@@ -2333,6 +2355,7 @@ def _refuse_wide_header(path: Path, text: str, delimiter: str, rows_before_heade
     if fields <= _MAX_HEADER_FIELDS:
         return
     rest = sum(1 for later in lines if later.strip())
+    _refuse_unicode_line_ends(path, text)
     raise InputFileError(
         f"input file {str(path)!r}: its header (line {rows_before_header + 1}) holds "
         f"{fields:,} fields, more than any table has columns (a spreadsheet holds at most "
@@ -2417,6 +2440,21 @@ def _refuse_other_header(path: Path, text: str, text_lines: list, header_at: int
         line_ordered = [cell.strip().strip('"').strip()
                         for cell in re.split(r'[,;\t ]', line)]
         cells = set(line_ordered)
+        tail = len(ordered)
+        if (len(line_ordered) > tail and line_ordered[-tail + 1:] == ordered[1:]
+                and line_ordered[-tail] != ordered[0]
+                and line_ordered[-tail].endswith(ordered[0])):
+            # a record and a header line on one line: files joined end to end where the
+            # first did not end with a line break (layouts31: named "a header line with
+            # other names")
+            joined = re.split(r"[,;\t ]", text_lines[number])[-tail].strip()
+            raise InputFileError(
+                f"input file {str(path)!r}: line {number + 1} holds a record run together "
+                f"with a header line (its field {joined!r}"
+                "): files joined end to end where the first did not end with a line break? "
+                "In a copy of the file, break the line before the header's first name and "
+                "remove the header, or split the file there and list the parts in [input] "
+                "path")
         if line_ordered == ordered:
             raise InputFileError(
                 f"input file {str(path)!r}: line {number + 1} repeats the header line "
@@ -2444,7 +2482,8 @@ def _named_width(header: list) -> int:
     return len(names)
 
 
-def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int) -> pd.DataFrame:
+def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int,
+                     delimiter: str = ",") -> pd.DataFrame:
     """Undo the parser's row index taken from data lines with more fields than the header.
 
     When the first data line has k fields more than the header, the parser reads the
@@ -2464,6 +2503,18 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int) -> pd.DataF
     filled = np.flatnonzero((spare.apply(lambda c: c.str.strip() != "")).any(axis=1))
     if filled.size:
         separator = next((c for c in (";", "\t", "|") if c in str(raw.columns[0])), None)
+        names = str(raw.columns[0]).split(separator) if separator else []
+        if (width == 1 and separator and len(names) == width + extra and not any(
+                separator in str(cell) for column in cells for cell in column[:1000])):
+            # the header in one delimiter, the data lines in the file's own: no data cell
+            # holds the header's separator, and the header holds as many names as a data
+            # line fields (a header typed or copied from another file; layouts31: the fix
+            # named was the header's delimiter, which splits no data line)
+            raise InputFileError(
+                f"input file {str(path)!r}: the header line separates its {len(names)} names "
+                f"by {setting_text(separator)}, the data lines their {width + extra} fields "
+                f"by the delimiter {setting_text(delimiter)} ([input] delimiter): write the header "
+                f"with the data's delimiter in a copy of the file")
         if width == 1 and separator:
             # a header of one cell holding another separator: decimal commas in the data
             # lines split them where the header line stays whole
@@ -3888,6 +3939,21 @@ def _near(name: str, options: list, taken=()) -> str:
         folded = [o for o in free if o.strip().casefold() == name.strip().casefold()]
         close = folded[:1]
     if not close:
+        # the name with a prefix or suffix joined by "_", "-", ".", ":" or a blank (a site
+        # code or logger name before each column name, "QMG_fc" for "fc"; layouts31: the
+        # file's columns were listed, none suggested)
+        key = name.strip().casefold()
+        joined = [o for o in free if len(key) >= 2 and (
+            re.fullmatch(r".+[_\-.: ]" + re.escape(key), o.strip().casefold())
+            or re.fullmatch(re.escape(key) + r"[_\-.: ].+", o.strip().casefold()))]
+        if len(joined) == 1:
+            start = joined[0].strip().casefold().find(key)
+            extra = joined[0].strip()[:start] if start > 0 else \
+                joined[0].strip()[start + len(key):]
+            where = "prefix" if start > 0 else "suffix"
+            return (f" (did you mean {joined[0]!r}? the file's name carries the {where} "
+                    f"{extra!r})")
+    if not close:
         return ""
     if unicodedata.normalize("NFKC", close[0]) == unicodedata.normalize("NFKC", name):
         # shown alike by most fonts (a Greek mu typed for the file's micro sign)
@@ -4072,6 +4138,14 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
                     "not read: remove the unit text from the cells in a copy of the file "
                     "(a spreadsheet's number format without the unit) and state the unit "
                     f"in [input.units] ({name.split(':')[0]} = \"...\")")
+        elif (note := _cell_marks(cleaned[bad], decimal, _COMMENTED_NUMBER)):
+            # listed as a missing code it would blank that one value (layouts31: the hint
+            # was "add it to [input] missing"); read without it it would keep a value the
+            # note may have meant dropped
+            hint = (f"; it is a number followed by a comment ({note}), which is not read: "
+                    "the commented values may be meant kept or dropped, two readings with "
+                    "other budgets; in a copy of the file remove the comments (values kept) "
+                    "or write those cells as a missing code (dropped)")
         elif (mark := _cell_marks(cleaned[bad], decimal, _MARKED_NUMBER)):
             # listed as a missing code it would blank one value of a mark whose meaning
             # (keep or drop) decides the budget; read without it it would keep them all

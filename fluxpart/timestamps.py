@@ -1063,6 +1063,14 @@ def _fraction_hint(failed: pd.Series, time_format: str) -> str:
                 "rounded: their day, hour and minute digits are lost; export the column again "
                 "formatted as text (or as dates and times, e.g. 2021-06-01 13:30) and set "
                 "time_format to match")
+    if failed.str.fullmatch(r"\s*[0-5]?\d:[0-5]\d[.,]\d+\s*").all():
+        # a spreadsheet opening stamps with fractions of seconds formats the cells as
+        # minutes, seconds and tenths and saves them so (common practice, layouts31):
+        # "30:00.0" is the minute and second of 00:30:00.000 of any hour and day
+        return (f"the stamps are minutes, seconds and tenths ({failed.iloc[0].strip()!r}), "
+                "as a spreadsheet shows and saves date-times it formatted as mm:ss.0: "
+                "their date and hour are lost; export the column again formatted as dates "
+                "and times (e.g. yyyy-mm-dd hh:mm) and set time_format to match")
     fractions = failed.str.extractall(r"(?<![\d.])\d+\.(\d+)(?![\d.])")
     if fractions.empty:
         return ""
@@ -1481,6 +1489,23 @@ def _civil_to_standard(index: pd.DatetimeIndex, text: pd.Series, time_zone: str,
     return standard, daylight, from_utc
 
 
+def _day_month_mixed(stamps) -> bool:
+    """True where the stamps go back in time but run strictly forward once day and month
+    are exchanged in each stamp whose day could be a month (12 or less, not equal to it)
+    (layouts31: a spreadsheet reading day-first stamps month-first where it could,
+    named "a logger clock reset")."""
+    index = pd.DatetimeIndex(stamps)
+    exchangeable = np.asarray((index.day <= 12) & (index.day != index.month))
+    if not exchangeable.any() or exchangeable.all():
+        return False
+    parts = pd.DataFrame({"year": index.year,
+                          "month": np.where(exchangeable, index.day, index.month),
+                          "day": np.where(exchangeable, index.month, index.day),
+                          "hour": index.hour, "minute": index.minute, "second": index.second})
+    exchanged = pd.to_datetime(parts, errors="coerce")
+    return bool(exchanged.notna().all() and (np.diff(exchanged.to_numpy()) > np.timedelta64(0)).all())
+
+
 def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: np.ndarray,
                 time_zone: str | None = None) -> None:
     """Raise for repeated stamps or stamps going backwards within one file.
@@ -1525,6 +1550,11 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         swapped = _runs_in_reverse_order(stamps, backwards)
         if swapped:
             hint = swapped
+        elif _day_month_mixed(stamps):
+            hint = ("read with the day and the month exchanged, the stamps whose day is 12 "
+                    "or less fall in order with the others: day and month are written in "
+                    "two orders (a spreadsheet that read day-first stamps month-first where "
+                    "the day allowed?); write every stamp in one order in a copy of the file")
         elif back_days > 1.0:
             # records merely out of order are a few records apart; a jump back by days
             # or years is a logger clock reset, which sorting would turn into a false

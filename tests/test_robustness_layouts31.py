@@ -149,3 +149,138 @@ def test_missing_by_variable_in_the_site_config(tmp_path):
     config.write_text(text + "solar = [0]\n", encoding="utf-8")
     with pytest.raises(ConfigError, match=r"\[input.missing_by_variable\] solar"):
         read_config(config)
+
+
+# ------------------------------------------------ messages that named a wrong cause or fix
+def _plain_lines(count=96):
+    ends, values = _records(count)
+    return ["stamp," + ",".join(NAMES)] + [
+        f"{e:%Y-%m-%d %H:%M}," + ",".join(f"{v:g}" for v in row)
+        for e, row in zip(ends, values, strict=True)]
+
+
+def test_a_number_with_a_comment_after_it_is_named(tmp_path):
+    """Before: "if '11.74 # sensor cleaned' marks missing data, add it to [input]
+    missing", which blanks that one value and names the next. "#" opens a comment to the
+    end of the line in CSV dialects that allow comments (common practice)."""
+    lines = _plain_lines()
+    for i in (10, 40):
+        lines[i] += " # sensor cleaned"
+    path = tmp_path / "c.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    with pytest.raises(Exception) as caught:
+        _read(path)
+    message = str(caught.value)
+    assert "followed by a comment ('# sensor cleaned' in every such cell)" in message
+    assert "add it to [input] missing" not in message
+    assert "kept or dropped" in message
+
+
+def test_minutes_and_seconds_of_a_spreadsheet_are_named(tmp_path):
+    """Before: "whole numbers written with a decimal fraction ... write them as integers".
+    Known truth: '30:00.0' is the minute, second and tenth of 00:30:00.0 (date and hour
+    lost, as a sheet saves a cell formatted mm:ss.0)."""
+    ends, _ = _records(96)
+    lines = _plain_lines()
+    lines[1:] = [f"{e:%M:%S}.0," + line.split(",", 1)[1] for e, line in zip(ends, lines[1:],
+                                                                           strict=True)]
+    assert lines[1].startswith("30:00.0,")
+    path = tmp_path / "m.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    with pytest.raises(Exception, match=r"minutes, seconds and tenths \('30:00.0'\).*date and "
+                                        r"hour are lost"):
+        _read(path)
+
+
+def test_a_header_in_another_delimiter_than_its_data_is_named(tmp_path):
+    """Before: "set [input] delimiter = ';'", under which no data line splits. Known
+    truth: a header of 7 names split by ';' over data lines of 7 fields split by ','."""
+    lines = _plain_lines()
+    lines[0] = lines[0].replace(",", ";")
+    path = tmp_path / "h.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    with pytest.raises(Exception) as caught:
+        _read(path)
+    message = str(caught.value)
+    assert 'separates its 7 names by ";", the data lines their 7 fields by the delimiter ","' \
+        in message
+
+
+def test_a_record_run_together_with_a_header_is_named(tmp_path):
+    """Before: "line 49 is a header line with other names or another order". Known truth:
+    two files joined end to end, the first without a line break at its end."""
+    lines = _plain_lines()
+    text = "\n".join(lines[:49]) + "\n".join([lines[0]] + lines[49:]) + "\n"
+    path = tmp_path / "j.csv"
+    path.write_text(text, encoding="utf-8")
+    assert len(text.splitlines()) == len(lines)         # one line fewer than the two files
+    with pytest.raises(Exception, match=r"line 49 holds a record run together with a header "
+                                        r"line \(its field '[-0-9.]+stamp'\)"):
+        _read(path)
+
+
+def test_a_zip_holding_a_compressed_file_names_it(tmp_path):
+    """Before: "is a zip archive (an .xlsx or .ods workbook is one)". The members are
+    read through the standard library's zipfile (PKWARE APPNOTE (m))."""
+    import gzip
+    import zipfile
+
+    path = tmp_path / "t.zip"
+    with zipfile.ZipFile(path, "w") as archive:
+        archive.writestr("tower.csv.gz", gzip.compress(b"stamp,fc\n", mtime=0))
+    assert zipfile.ZipFile(path).namelist() == ["tower.csv.gz"]
+    with pytest.raises(Exception) as caught:
+        _read(path)
+    message = str(caught.value)
+    assert "holding 1 file(s) ('tower.csv.gz')" in message and "workbook" not in message
+    # a workbook's parts ([Content_Types].xml, ECMA-376 (m)) keep the workbook's words
+    book = tmp_path / "b.xlsx"
+    with zipfile.ZipFile(book, "w") as archive:
+        archive.writestr("[Content_Types].xml", "<Types/>")
+    with pytest.raises(Exception, match="an .xlsx or .ods workbook"):
+        _read(book)
+
+
+def test_a_site_code_before_each_name_is_suggested(tmp_path):
+    """Before: the file's columns listed, none suggested ('fc' and 'QMG_fc' are too far
+    apart for difflib's ratio, 2*2/8 = 0.5 below 0.6)."""
+    import difflib
+
+    assert difflib.SequenceMatcher(None, "fc", "QMG_fc").ratio() == 0.5
+    lines = _plain_lines()
+    lines[0] = "stamp," + ",".join("QMG_" + n for n in NAMES)
+    path = tmp_path / "p.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    with pytest.raises(Exception, match=r"did you mean 'QMG_fc'\? the file's name carries the "
+                                        r"prefix 'QMG_'"):
+        _read(path)
+
+
+@pytest.mark.parametrize("mark", ["\u2028", "\x85"])
+def test_lines_ended_by_unicode_separators_are_named(tmp_path, mark):
+    """Before: "has a header but no records". U+2028 LINE SEPARATOR and U+0085 NEXT LINE
+    are line ends to Unicode (str.splitlines takes them, Unicode Standard 5.8 (m)) but
+    not to a CSV parser."""
+    assert len(f"a{mark}b".splitlines()) == 2
+    path = tmp_path / "u.csv"
+    path.write_bytes((mark.join(_plain_lines()) + mark).encode("utf-8"))
+    with pytest.raises(Exception, match=f"lines end in U\\+{ord(mark):04X}"):
+        _read(path)
+
+
+def test_day_and_month_in_two_orders_are_named(tmp_path):
+    """Before: "the stamps jump back by 207 days: a logger clock reset". Known truth:
+    day-first stamps, those of days 1-12 written month-first (a spreadsheet's reading);
+    the standard library's strptime reads '05/12/2021' as 5 December under %d/%m/%Y."""
+    from datetime import datetime
+
+    assert datetime.strptime("05/12/2021", "%d/%m/%Y").month == 12
+    ends, values = _records(48 * 20)
+    lines = ["stamp," + ",".join(NAMES)]
+    for e, row in zip(ends, values, strict=True):
+        first = f"{e.month:02d}/{e.day:02d}" if e.day <= 12 else f"{e.day:02d}/{e.month:02d}"
+        lines.append(f"{first}/{e.year} {e:%H:%M}," + ",".join(f"{v:g}" for v in row))
+    path = tmp_path / "d.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    with pytest.raises(Exception, match="day and month are written in two orders"):
+        _read(path, time_format="%d/%m/%Y %H:%M")
