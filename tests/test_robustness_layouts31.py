@@ -284,3 +284,18 @@ def test_day_and_month_in_two_orders_are_named(tmp_path):
     path.write_text("\n".join(lines) + "\n", encoding="utf-8")
     with pytest.raises(Exception, match="day and month are written in two orders"):
         _read(path, time_format="%d/%m/%Y %H:%M")
+
+
+def test_the_zero_code_hint_of_nee_names_the_code_of_one_column(tmp_path):
+    """The reader's hint for NEE written 0 where missing ("add 0 to [input] missing") led
+    to the code that blanks Rg at night; it names [input.missing_by_variable] too, and the
+    setting it names reads the file with Rg whole."""
+    ends, values = _records(48 * 60)
+    values[::7, 0] = 0.0                      # a flux is not exactly 0 that often (m)
+    path = _write(tmp_path / "z.csv", ends, values)
+    with pytest.raises(Exception) as caught:
+        _read(path)
+    assert "nee = [0] to [input.missing_by_variable]" in str(caught.value)
+    frame, _ = _read(path, missing_by_variable={"nee": [0]})
+    assert int(frame["nee"].isna().sum()) == len(values[::7])
+    assert not frame["rg"].isna().any()
