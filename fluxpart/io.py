@@ -2712,6 +2712,18 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
                 f"{text_lines[lines[row] - 1].lstrip()[:2].rstrip()!r}); {len(inner)} such "
                 "line(s) before the last. Delete them in a copy of the file (keep the notes "
                 "in a separate file)")
+        spaced = text_lines[lines[row] - 1]
+        if delimiter == "\t" and re.search(r" {2,}", spaced) and _field_count(
+                re.sub(r" *\t *| {2,}", "\t", spaced.strip()), delimiter) == width:
+            # tabs typed or converted as blanks on some lines (an editor's tab setting;
+            # layouts31: named "a record cut short"): with runs of two or more blanks
+            # taken for tabs the line holds the header's fields
+            raise InputFileError(
+                f"{where}: it separates fields by runs of blanks where the other lines "
+                f"hold tabs (an editor that turned tabs into spaces?); {len(inner)} such "
+                "line(s) before the last. Write a tab between the fields of those lines in "
+                "a copy of the file, or set [input] delimiter = \"whitespace\" where no "
+                "value holds a blank")
         raise InputFileError(
             f"{where}; a record cut short may hold a value cut mid-number; "
             f"{len(inner)} such line(s) before the last. Complete or delete them (or a footer) "
