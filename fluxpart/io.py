@@ -2388,6 +2388,18 @@ def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
         return
     around = ("; the title and units lines around it too" if rows_before_header
               or rows_after_header else "")
+    repeats = [number for number, line in enumerate(text_lines[again:], again)
+               if line.strip() == header_line]
+    gaps = np.diff([rows_before_header] + repeats)
+    if len(repeats) >= 3 and int(gaps.max()) - int(gaps.min()) <= 3:
+        # the header every so many lines (pages of a printout, a logger's screen pages;
+        # layouts31: named as one restart or one join)
+        raise InputFileError(
+            f"input file {str(path)!r}: the header line repeats {len(repeats)} times, every "
+            f"{int(gaps.min())} lines or so from line {again + 1} on (pages of a printout, "
+            "or a logger writing its header every day?): in a copy of the file, keep the "
+            "first header and "
+            f"remove the repeated ones{around} and any page lines between the records")
     raise InputFileError(
         f"input file {str(path)!r}: line {again + 1} repeats the header line (a logger "
         "program restarted, or files joined end to end?): in a copy of the file, remove it"

@@ -314,3 +314,21 @@ def test_tabs_turned_into_blanks_on_some_lines_are_named(tmp_path):
     with pytest.raises(Exception, match=r"line 6 .*separates fields by runs of blanks where "
                                         r"the other lines hold tabs"):
         _read(path, delimiter="\t")
+
+
+def test_a_header_on_every_page_is_named_as_pages(tmp_path):
+    """Before: "line 53 repeats the header line (a logger program restarted, or files
+    joined end to end?)", one restart named for a header printed on every page. Known
+    truth: a page line and the header after every 50 records."""
+    lines = _plain_lines(48 * 4)
+    out = [lines[0]]
+    for i, line in enumerate(lines[1:]):
+        if i and i % 50 == 0:
+            out += [f"Page {i // 50 + 1}", lines[0]]
+        out.append(line)
+    path = tmp_path / "p.csv"
+    path.write_text("\n".join(out) + "\n", encoding="utf-8")
+    assert out.count(lines[0]) == 4
+    with pytest.raises(Exception, match=r"the header line repeats 3 times, every 52 lines or "
+                                        r"so from line 53 on \(pages of a printout"):
+        _read(path)
