@@ -1651,6 +1651,14 @@ def _scattered_seconds(stamps: pd.DatetimeIndex, steps: np.ndarray, describe,
         if far.size < 0.1 * len(stamps):
             continue
         first = int(far[0])
+        drift = _steady_drift(stamps, minutes)
+        if drift:
+            return (f"the stamps of these {minutes}-minute records move steadily off the "
+                    f"clock grid, {drift} ({far.size} stamps more than {JITTER_SECONDS:g} s "
+                    f"from a whole minute, the first at {describe(first)}): a logger clock "
+                    "running fast or slow and not set during the record? Write each stamp "
+                    "as the whole minute of its interval's end (or start) in a copy of the "
+                    "file")
         return (f"the stamps of these {minutes}-minute records carry seconds that vary "
                 f"from record to record ({stamps[first]:%Y-%m-%d %H:%M:%S} at "
                 f"{describe(first)}; {far.size} stamps more than {JITTER_SECONDS:g} s from "
@@ -1659,6 +1667,33 @@ def _scattered_seconds(stamps: pd.DatetimeIndex, steps: np.ndarray, describe,
                 "that stamps the moment it writes each record? Write each stamp as the "
                 "whole minute of its interval's end (or start) in a copy of the file")
     return ""
+
+
+def _steady_drift(stamps: pd.DatetimeIndex, minutes: int) -> str:
+    """Where the stamps' distance from the `minutes` grid grows (or shrinks) steadily, a
+    clock drifting by seconds a day (layouts31: named a logger stamping the moment it
+    writes), the drift as text ("+3.0 s a day, from +0 s to +120 s"), else ''.
+
+    Steady: 99 % of the steps of the distance move one way or stay within the jitter
+    rounding (:data:`JITTER_SECONDS`), and the distance moves 60 s or more in all. A
+    quartz clock drifts so by a few seconds a day (common practice).
+    """
+    index = pd.DatetimeIndex(stamps)
+    since = np.asarray((index - index[0].floor("D")) / pd.Timedelta(seconds=1), dtype=float)
+    period = minutes * 60.0
+    offset = (since + period / 2) % period - period / 2
+    offset = np.unwrap(offset, period=period)
+    steps = np.diff(offset)
+    if steps.size < 2 or abs(offset[-1] - offset[0]) < 60.0:
+        return ""
+    sign = np.sign(offset[-1] - offset[0])
+    if np.mean(sign * steps >= -JITTER_SECONDS) < 0.99:
+        return ""
+    days = (index[-1] - index[0]) / pd.Timedelta(days=1)
+    if days <= 0:
+        return ""
+    rate = (offset[-1] - offset[0]) / days
+    return f"by {rate:+.1f} s a day (from {offset[0]:+.0f} s to {offset[-1]:+.0f} s)"
 
 
 def _midnight_of_the_day_it_ends(stamps: pd.DatetimeIndex, row: int) -> bool:

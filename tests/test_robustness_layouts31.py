@@ -332,3 +332,27 @@ def test_a_header_on_every_page_is_named_as_pages(tmp_path):
     with pytest.raises(Exception, match=r"the header line repeats 3 times, every 52 lines or "
                                         r"so from line 53 on \(pages of a printout"):
         _read(path)
+
+
+def test_a_clock_drifting_seconds_a_day_is_named_as_drift(tmp_path):
+    """Before: "seconds that vary from record to record ... a logger that stamps the moment
+    it writes each record?". Known truth: end stamps 3 s later each day (a quartz clock
+    running fast), written to the second; 30 days make 90 s."""
+    ends, values = _records()
+    drifted = ends + pd.to_timedelta(np.arange(len(ends)) * 3.0 / 48, unit="s")
+    lines = ["stamp," + ",".join(NAMES)] + [
+        f"{e.round('1s'):%Y-%m-%d %H:%M:%S}," + ",".join(f"{v:g}" for v in row)
+        for e, row in zip(drifted, values, strict=True)]
+    path = tmp_path / "d.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    with pytest.raises(Exception, match=r"move steadily off the clock grid, by \+3\.0 s a day "
+                                        r"\(from \+0 s to \+90 s\)"):
+        _read(path, time_format="%Y-%m-%d %H:%M:%S")
+    # a logger stamping the moment it writes (0-60 s late at random) is no drift
+    rng = np.random.default_rng(7)
+    late = ends + pd.to_timedelta(rng.uniform(0, 59, len(ends)).round(), unit="s")
+    lines[1:] = [f"{e:%Y-%m-%d %H:%M:%S}," + line.split(",", 1)[1]
+                 for e, line in zip(late, lines[1:], strict=True)]
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    with pytest.raises(Exception, match="the moment it writes each record"):
+        _read(path, time_format="%Y-%m-%d %H:%M:%S")
