@@ -161,6 +161,19 @@ _BINARY_SIGNATURES = (
 )
 
 
+def _zip_members(data: bytes) -> list | None:
+    """The names of the files a zip archive holds (folders left out), or None where the
+    standard library cannot open it."""
+    import io
+    import zipfile
+
+    try:
+        with zipfile.ZipFile(io.BytesIO(data)) as archive:
+            return [info.filename for info in archive.infolist() if not info.is_dir()]
+    except (zipfile.BadZipFile, OSError, ValueError, EOFError):
+        return None
+
+
 def refuse_binary(data: bytes, path) -> None:
     """Raise InputFileError naming the format when `data` starts like a binary file.
 
@@ -172,6 +185,25 @@ def refuse_binary(data: bytes, path) -> None:
         signatures.append((b"PAR1", "a Parquet file", "export it as CSV"))
     if data.startswith(b"BZh") and data[4:10] == b"1AY&SY":
         signatures.append((b"BZh", "bzip2-compressed", "decompress it (e.g. bunzip2)"))
+    if data.startswith(b"PK\x03\x04"):
+        members = _zip_members(data)
+        if members is not None and not {"[Content_Types].xml", "mimetype"} & set(members):
+            # not a workbook (whose parts these are, ECMA-376 part 2 and OpenDocument
+            # 1.2 part 3 (m)): the files it holds are named (layouts31: a zip holding a
+            # gzip file was named "an .xlsx or .ods workbook is one")
+            shown = ", ".join(repr(name) for name in members[:3])
+            more = f" and {len(members) - 3} more" if len(members) > 3 else ""
+            archives = [name for name in members
+                        if name.lower().endswith((".zip", ".7z", ".tar", ".tgz", ".tar.gz"))]
+            compressed = [name for name in members
+                          if name.lower().endswith((".gz", ".bz2", ".xz"))]
+            inner = (f"; {archives[0]!r} is itself an archive: unpack it too" if archives
+                     else f" ({compressed[0]!r} is read as it is, compressed)" if compressed
+                     else "")
+            raise InputFileError(f"[input] path: {str(path)!r} is a zip archive holding "
+                                 f"{len(members)} file(s) ({shown}{more}), not a text table; "
+                                 f"unpack it{inner} and point [input] path at the text "
+                                 "file(s)")
     for signature, kind, fix in signatures:
         if data.startswith(signature):
             raise InputFileError(f"[input] path: {str(path)!r} is {kind}, not a text table; "

@@ -60,6 +60,7 @@ from ._validate import (
     refuse_binary,
     unicode_form_hint,
 )
+from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
 from .comma_fields import field_count, unquoted_decimal_commas
 from .config import Config, setting_text, suggest_key
 from .errors import (
@@ -140,7 +141,8 @@ _TOP_LEVEL_KEYS = ("input", "processing", "site")
 _SITE_KEYS = ("canopy", "latitude", "longitude", "name", "utc_offset")
 _SITE_REQUIRED = ("name", "latitude", "longitude", "utc_offset")
 _INPUT_KEYS = ("accept_units", "columns", "decimal", "delimiter", "encoding", "flag_accept",
-               "interval_minutes", "missing", "path", "rows_after_header",
+               "interval_minutes", "missing", "missing_by_variable", "path",
+               "rows_after_header",
                "rows_before_header", "time_column", "time_format", "time_marks", "time_zone",
                "units")
 _INPUT_REQUIRED = ("path", "time_column", "time_format", "time_marks", "columns")
@@ -185,6 +187,11 @@ _NUMBER_WITH_UNIT = re.compile(
 #: a suspect, edited or estimated value (common practice), and two numbers in one cell
 #: joined by "|", "/" or "_" ("0.329|0": a value and its quality flag).
 _MARKED_NUMBER = re.compile(r"([+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?)\s*([*?!#~^]+)")
+#: A number followed by a comment: a comment mark ("#", "//", ";", "!") and words after it
+#: ("11.74 # sensor cleaned"), as a logger program's or an editor's note at the end of a
+#: line is written (common practice); the words hold a letter.
+_COMMENTED_NUMBER = re.compile(
+    r"([+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?)\s*((?:#|//|;|!)\s*\S*[A-Za-z].*)")
 _TWO_NUMBERS = re.compile(
     r"([+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?)\s*([|/_])\s*"
     r"[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?")
@@ -454,6 +461,9 @@ class SiteConfig:
         Site-flag values that keep a record.
     accept_units : tuple of str
         Variables whose unit checks only warn.
+    missing_by_variable : dict
+        Canonical name -> codes meaning "no value" in that variable's column only, beside
+        `missing` (``[input.missing_by_variable]``).
     """
 
     site: Site
@@ -475,6 +485,7 @@ class SiteConfig:
     time_zone: str | None = None
     flag_accept: tuple = _DEFAULT_FLAG_ACCEPT
     accept_units: tuple = ()
+    missing_by_variable: dict = field(default_factory=dict)
 
     @property
     def input_path(self) -> Path:
@@ -524,7 +535,8 @@ class SiteConfig:
                 "rows_before_header": self.rows_before_header,
                 "rows_after_header": self.rows_after_header, "time_zone": self.time_zone,
                 "flag_accept": self.flag_accept, "accept_units": self.accept_units,
-                "site": self.site}
+                "site": self.site} | ({"missing_by_variable": dict(self.missing_by_variable)}
+                                      if self.missing_by_variable else {})
 
 
 def read_config(path) -> tuple[pd.DataFrame, Site]:
@@ -661,6 +673,8 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
         flag_accept=_check_flag_accept(input_table.get("flag_accept",
                                                        list(_DEFAULT_FLAG_ACCEPT))),
         accept_units=_check_accept_units(input_table.get("accept_units", [])),
+        missing_by_variable=_check_missing_by_variable(
+            input_table.get("missing_by_variable", {}), columns),
     )
 
 
@@ -668,7 +682,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                missing=_DEFAULT_MISSING, delimiter=",", interval_minutes=None, decimal=".",
                encoding=None, rows_before_header=0, rows_after_header=0, time_zone=None,
                flag_accept=_DEFAULT_FLAG_ACCEPT, accept_units=(), site=None,
-               unit_problems="refuse"):
+               unit_problems="refuse", missing_by_variable=None):
     """Read delimited files of tower records into the canonical frame.
 
     Parameters
@@ -724,6 +738,12 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         ImplausibleValueError (default), or go into ``report.unit_refusals`` and
         ``report.warnings`` with the values kept as declared (for a preflight that
         lists every problem).
+    missing_by_variable : dict, optional
+        Canonical name -> codes meaning "no value" in that variable's column only, beside
+        `missing`. A numeric code of `missing` that is an ordinary reading of a column
+        (0 in Rg at night, a freezing-point temperature) is refused naming both readings
+        (:func:`fluxpart.code_values.ordinary_code_message`); this setting says which
+        columns it is meant for.
 
     Returns
     -------
@@ -804,6 +824,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     flag_accept = _check_flag_accept(flag_accept)
     flag_missing, exempted = _flag_missing_codes(missing, flag_accept)
     accept_units = _check_accept_units(accept_units)
+    missing_by_variable = _check_missing_by_variable(missing_by_variable or {}, columns)
     if unit_problems not in ("refuse", "report"):
         raise ConfigError(f"unit_problems = {unit_problems!r}: expected 'refuse' or 'report'")
     preflight: list[str] | None = [] if unit_problems == "report" else None
@@ -836,7 +857,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               rows_after_header=rows_after_header, time_zone=time_zone,
                               utc_offset=utc_offset, warnings=warnings,
                               may_lack=len(paths) > 1, flag_missing=flag_missing,
-                              time_marks=time_marks)
+                              time_marks=time_marks, site=site,
+                              missing_by_variable=missing_by_variable)
         except _EmptyFileError as error:
             # one of several files without records (a logger file opened at a power cut):
             # it holds nothing to read, so the others are read and it is named
@@ -1566,6 +1588,59 @@ def _flag_missing_codes(missing: tuple, flag_accept: tuple) -> tuple[tuple, list
     return kept, left_out
 
 
+def _check_missing_by_variable(value, columns) -> dict:
+    """``[input.missing_by_variable]``: canonical name -> codes of that column only."""
+    if not isinstance(value, dict):
+        raise ConfigError(f"[input] missing_by_variable = {setting_text(value)}: expected a "
+                          "table of canonical names and code lists, e.g. "
+                          "[input.missing_by_variable] nee = [0]")
+    checked = {}
+    for name, codes in value.items():
+        if name not in READER_VARIABLES or name == "nee_flag":
+            raise ConfigError(f"[input.missing_by_variable] {name}: expected a canonical "
+                              f"variable ({', '.join(v for v in READER_VARIABLES if v != 'nee_flag')})")
+        if not isinstance(codes, (list, tuple)):
+            codes = [codes]
+        try:
+            checked[name] = _check_missing(list(codes))
+        except ConfigError:
+            raise ConfigError(f"[input.missing_by_variable] {name} = {setting_text(codes)}: "
+                              f"expected a list of codes, e.g. {name} = [0]") from None
+    return checked
+
+
+def _refuse_ordinary_code(text, column, name, codes, judged, decimal, source, lines,
+                          comma_file, stamps, time_marks, site, explicit=()) -> None:
+    """Refuse a numeric missing code of ``[input] missing`` that is an ordinary reading of
+    this column (:func:`fluxpart.code_values.ordinary_code_message`). Run only where
+    `missing` holds a code of magnitude below
+    :data:`~fluxpart.code_values.JUDGED_MAGNITUDE`, so other reads are unchanged; a code
+    also listed for this column in `explicit` (``[input.missing_by_variable]``) is meant
+    for it and not judged."""
+    def number(code):
+        found = _numeric_codes((code,), decimal)
+        return found[0] if found else None
+
+    judged = [code for code in judged if code not in {number(c) for c in explicit}]
+    if not judged:
+        return
+    kept = tuple(c for c in codes if number(c) not in judged)
+    written, _, _ = _numbers(text, column, name, kept, decimal, source, lines, comma_file)
+    night = None
+    if name in ("rg", "ppfd") and site is not None and len(stamps) > 1:
+        index = pd.DatetimeIndex(stamps)
+        seconds = index.values.astype("datetime64[s]").astype(np.int64)
+        spacing = float(np.median(np.diff(seconds))) / 60.0
+        minutes = int(round(spacing)) if 1 <= spacing <= 1440 else 30
+        shift = {"start": 0.0, "middle": minutes / 2, "end": float(minutes)}.get(time_marks, 0.0)
+        potential = _potential(index - pd.Timedelta(minutes=shift), site, minutes)
+        night = np.asarray(potential) < NIGHT_POTENTIAL
+    for code in judged:
+        message = ordinary_code_message(name, column, code, written, night, source)
+        if message:
+            raise ConfigError(message)
+
+
 def _check_accept_units(value) -> tuple:
     if not isinstance(value, (list, tuple)) or any(
             not isinstance(v, str) or v not in READER_VARIABLES for v in value):
@@ -2212,7 +2287,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
         return _read_text(path, "\n".join(text_lines[:number]) + "\n", delimiter,
                           rows_before_header, rows_after_header, warnings)
     first_line = rows_before_header + rows_after_header + 2
-    raw = _trailing_fields(path, raw, first_line)
+    raw = _trailing_fields(path, raw, first_line, delimiter)
     blank = _blank_rows(raw)
     lines = _record_lines(text, first_line, len(raw), delimiter)
     raw = raw.loc[~blank].reset_index(drop=True)
@@ -2231,6 +2306,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
         raw = raw.iloc[:, :named]
         header = header[:named]
     if raw.empty:
+        _refuse_unicode_line_ends(path, text)
         skipped_after = (f" after the {rows_after_header} line(s) of rows_after_header"
                          if rows_after_header else "")
         raise _EmptyFileError(f"input file {str(path)!r} has a header but no records"
@@ -2244,6 +2320,22 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
 #: columns (Excel's specification and limits since Excel 2007 (m)), eddy-covariance
 #: programs' full outputs a few hundred
 _MAX_HEADER_FIELDS = 16384
+
+
+def _refuse_unicode_line_ends(path: Path, text: str) -> None:
+    """Raise where the lines end in Unicode's NEXT LINE or LINE/PARAGRAPH SEPARATOR (a
+    mainframe's EBCDIC newline converted, a word processor's line break; Unicode Standard,
+    section 5.8 (m)) and in no line break, which the table parser takes for one line
+    (layouts31: named "a header but no records", or a header too wide)."""
+    inner = text.rstrip("\r\n")
+    if "\n" in inner or "\r" in inner:
+        return
+    count, mark = max((text.count(mark), mark) for mark in ("\x85", "\u2028", "\u2029"))
+    if count >= 2:
+        raise InputFileError(
+            f"input file {str(path)!r}: its {count} lines end in U+{ord(mark):04X} "
+            f"{unicodedata.name(mark, 'NEXT LINE')}, not in a line break (LF or CRLF), so "
+            "it reads as one line: convert the line ends to LF in a copy of the file")
 
 
 def _refuse_wide_header(path: Path, text: str, delimiter: str, rows_before_header: int
@@ -2268,6 +2360,7 @@ def _refuse_wide_header(path: Path, text: str, delimiter: str, rows_before_heade
     if fields <= _MAX_HEADER_FIELDS:
         return
     rest = sum(1 for later in lines if later.strip())
+    _refuse_unicode_line_ends(path, text)
     raise InputFileError(
         f"input file {str(path)!r}: its header (line {rows_before_header + 1}) holds "
         f"{fields:,} fields, more than any table has columns (a spreadsheet holds at most "
@@ -2300,6 +2393,18 @@ def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
         return
     around = ("; the title and units lines around it too" if rows_before_header
               or rows_after_header else "")
+    repeats = [number for number, line in enumerate(text_lines[again:], again)
+               if line.strip() == header_line]
+    gaps = np.diff([rows_before_header] + repeats)
+    if len(repeats) >= 3 and int(gaps.max()) - int(gaps.min()) <= 3:
+        # the header every so many lines (pages of a printout, a logger's screen pages;
+        # layouts31: named as one restart or one join)
+        raise InputFileError(
+            f"input file {str(path)!r}: the header line repeats {len(repeats)} times, every "
+            f"{int(gaps.min())} lines or so from line {again + 1} on (pages of a printout, "
+            "or a logger writing its header every day?): in a copy of the file, keep the "
+            "first header and "
+            f"remove the repeated ones{around} and any page lines between the records")
     raise InputFileError(
         f"input file {str(path)!r}: line {again + 1} repeats the header line (a logger "
         "program restarted, or files joined end to end?): in a copy of the file, remove it"
@@ -2352,6 +2457,21 @@ def _refuse_other_header(path: Path, text: str, text_lines: list, header_at: int
         line_ordered = [cell.strip().strip('"').strip()
                         for cell in re.split(r'[,;\t ]', line)]
         cells = set(line_ordered)
+        tail = len(ordered)
+        if (len(line_ordered) > tail and line_ordered[-tail + 1:] == ordered[1:]
+                and line_ordered[-tail] != ordered[0]
+                and line_ordered[-tail].endswith(ordered[0])):
+            # a record and a header line on one line: files joined end to end where the
+            # first did not end with a line break (layouts31: named "a header line with
+            # other names")
+            joined = re.split(r"[,;\t ]", text_lines[number])[-tail].strip()
+            raise InputFileError(
+                f"input file {str(path)!r}: line {number + 1} holds a record run together "
+                f"with a header line (its field {joined!r}"
+                "): files joined end to end where the first did not end with a line break? "
+                "In a copy of the file, break the line before the header's first name and "
+                "remove the header, or split the file there and list the parts in [input] "
+                "path")
         if line_ordered == ordered:
             raise InputFileError(
                 f"input file {str(path)!r}: line {number + 1} repeats the header line "
@@ -2379,7 +2499,8 @@ def _named_width(header: list) -> int:
     return len(names)
 
 
-def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int) -> pd.DataFrame:
+def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int,
+                     delimiter: str = ",") -> pd.DataFrame:
     """Undo the parser's row index taken from data lines with more fields than the header.
 
     When the first data line has k fields more than the header, the parser reads the
@@ -2399,6 +2520,18 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int) -> pd.DataF
     filled = np.flatnonzero((spare.apply(lambda c: c.str.strip() != "")).any(axis=1))
     if filled.size:
         separator = next((c for c in (";", "\t", "|") if c in str(raw.columns[0])), None)
+        names = str(raw.columns[0]).split(separator) if separator else []
+        if (width == 1 and separator and len(names) == width + extra and not any(
+                separator in str(cell) for column in cells for cell in column[:1000])):
+            # the header in one delimiter, the data lines in the file's own: no data cell
+            # holds the header's separator, and the header holds as many names as a data
+            # line fields (a header typed or copied from another file; layouts31: the fix
+            # named was the header's delimiter, which splits no data line)
+            raise InputFileError(
+                f"input file {str(path)!r}: the header line separates its {len(names)} names "
+                f"by {setting_text(separator)}, the data lines their {width + extra} fields "
+                f"by the delimiter {setting_text(delimiter)} ([input] delimiter): write the header "
+                f"with the data's delimiter in a copy of the file")
         if width == 1 and separator:
             # a header of one cell holding another separator: decimal commas in the data
             # lines split them where the header line stays whole
@@ -2596,6 +2729,18 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
                 f"{text_lines[lines[row] - 1].lstrip()[:2].rstrip()!r}); {len(inner)} such "
                 "line(s) before the last. Delete them in a copy of the file (keep the notes "
                 "in a separate file)")
+        spaced = text_lines[lines[row] - 1]
+        if delimiter == "\t" and re.search(r" {2,}", spaced) and _field_count(
+                re.sub(r" *\t *| {2,}", "\t", spaced.strip()), delimiter) == width:
+            # tabs typed or converted as blanks on some lines (an editor's tab setting;
+            # layouts31: named "a record cut short"): with runs of two or more blanks
+            # taken for tabs the line holds the header's fields
+            raise InputFileError(
+                f"{where}: it separates fields by runs of blanks where the other lines "
+                f"hold tabs (an editor that turned tabs into spaces?); {len(inner)} such "
+                "line(s) before the last. Write a tab between the fields of those lines in "
+                "a copy of the file, or set [input] delimiter = \"whitespace\" where no "
+                "value holds a blank")
         raise InputFileError(
             f"{where}; a record cut short may hold a value cut mid-number; "
             f"{len(inner)} such line(s) before the last. Complete or delete them (or a footer) "
@@ -2853,7 +2998,7 @@ _ISO_WITHOUT_OFFSETS = "%Y-%m-%dT%H:%M:%S"
 def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_format, missing,
                delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
                utc_offset, warnings, may_lack=False, flag_missing=None,
-               time_marks=None) -> dict:
+               time_marks=None, site=None, missing_by_variable=None) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column.
 
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
@@ -2922,10 +3067,18 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     comma_file = decimal == "," and any(
         raw[column].str.contains(",", regex=False).any() for column in read.values())
     flag_keys = {_flag_key(column) for column in flag_columns}
+    missing_by_variable = missing_by_variable or {}
+    judged = tuple(code for code in _numeric_codes(missing, decimal)
+                   if math.isfinite(code) and abs(code) < JUDGED_MAGNITUDE)
     for name, column in read.items():
         codes = flag_missing if (flag_missing is not None and name in flag_keys) else missing
+        codes = tuple(codes) + tuple(missing_by_variable.get(name, ()))
         numbers, n_missing, absurd = _numbers(raw[column], column, name, codes, decimal,
                                               source, lines, comma_file)
+        if judged and name not in flag_keys:
+            _refuse_ordinary_code(raw[column], column, name, codes, judged, decimal, source,
+                                  lines, comma_file, parsed.stamps, time_marks, site,
+                                  missing_by_variable.get(name, ()))
         values[name], missing_cells[name], nonfinite[name] = numbers, n_missing, int(absurd.sum())
         if absurd.any():
             warnings.append(f"column {column!r} ({name.split(':')[0]}): {int(absurd.sum())} "
@@ -3815,6 +3968,21 @@ def _near(name: str, options: list, taken=()) -> str:
         folded = [o for o in free if o.strip().casefold() == name.strip().casefold()]
         close = folded[:1]
     if not close:
+        # the name with a prefix or suffix joined by "_", "-", ".", ":" or a blank (a site
+        # code or logger name before each column name, "QMG_fc" for "fc"; layouts31: the
+        # file's columns were listed, none suggested)
+        key = name.strip().casefold()
+        joined = [o for o in free if len(key) >= 2 and (
+            re.fullmatch(r".+[_\-.: ]" + re.escape(key), o.strip().casefold())
+            or re.fullmatch(re.escape(key) + r"[_\-.: ].+", o.strip().casefold()))]
+        if len(joined) == 1:
+            start = joined[0].strip().casefold().find(key)
+            extra = joined[0].strip()[:start] if start > 0 else \
+                joined[0].strip()[start + len(key):]
+            where = "prefix" if start > 0 else "suffix"
+            return (f" (did you mean {joined[0]!r}? the file's name carries the {where} "
+                    f"{extra!r})")
+    if not close:
         return ""
     if unicodedata.normalize("NFKC", close[0]) == unicodedata.normalize("NFKC", name):
         # shown alike by most fonts (a Greek mu typed for the file's micro sign)
@@ -3999,6 +4167,14 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
                     "not read: remove the unit text from the cells in a copy of the file "
                     "(a spreadsheet's number format without the unit) and state the unit "
                     f"in [input.units] ({name.split(':')[0]} = \"...\")")
+        elif (note := _cell_marks(cleaned[bad], decimal, _COMMENTED_NUMBER)):
+            # listed as a missing code it would blank that one value (layouts31: the hint
+            # was "add it to [input] missing"); read without it it would keep a value the
+            # note may have meant dropped
+            hint = (f"; it is a number followed by a comment ({note}), which is not read: "
+                    "the commented values may be meant kept or dropped, two readings with "
+                    "other budgets; in a copy of the file remove the comments (values kept) "
+                    "or write those cells as a missing code (dropped)")
         elif (mark := _cell_marks(cleaned[bad], decimal, _MARKED_NUMBER)):
             # listed as a missing code it would blank one value of a mark whose meaning
             # (keep or drop) decides the budget; read without it it would keep them all

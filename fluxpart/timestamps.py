@@ -1063,6 +1063,14 @@ def _fraction_hint(failed: pd.Series, time_format: str) -> str:
                 "rounded: their day, hour and minute digits are lost; export the column again "
                 "formatted as text (or as dates and times, e.g. 2021-06-01 13:30) and set "
                 "time_format to match")
+    if failed.str.fullmatch(r"\s*[0-5]?\d:[0-5]\d[.,]\d+\s*").all():
+        # a spreadsheet opening stamps with fractions of seconds formats the cells as
+        # minutes, seconds and tenths and saves them so (common practice, layouts31):
+        # "30:00.0" is the minute and second of 00:30:00.000 of any hour and day
+        return (f"the stamps are minutes, seconds and tenths ({failed.iloc[0].strip()!r}), "
+                "as a spreadsheet shows and saves date-times it formatted as mm:ss.0: "
+                "their date and hour are lost; export the column again formatted as dates "
+                "and times (e.g. yyyy-mm-dd hh:mm) and set time_format to match")
     fractions = failed.str.extractall(r"(?<![\d.])\d+\.(\d+)(?![\d.])")
     if fractions.empty:
         return ""
@@ -1481,6 +1489,23 @@ def _civil_to_standard(index: pd.DatetimeIndex, text: pd.Series, time_zone: str,
     return standard, daylight, from_utc
 
 
+def _day_month_mixed(stamps) -> bool:
+    """True where the stamps go back in time but run strictly forward once day and month
+    are exchanged in each stamp whose day could be a month (12 or less, not equal to it)
+    (layouts31: a spreadsheet reading day-first stamps month-first where it could,
+    named "a logger clock reset")."""
+    index = pd.DatetimeIndex(stamps)
+    exchangeable = np.asarray((index.day <= 12) & (index.day != index.month))
+    if not exchangeable.any() or exchangeable.all():
+        return False
+    parts = pd.DataFrame({"year": index.year,
+                          "month": np.where(exchangeable, index.day, index.month),
+                          "day": np.where(exchangeable, index.month, index.day),
+                          "hour": index.hour, "minute": index.minute, "second": index.second})
+    exchanged = pd.to_datetime(parts, errors="coerce")
+    return bool(exchanged.notna().all() and (np.diff(exchanged.to_numpy()) > np.timedelta64(0)).all())
+
+
 def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: np.ndarray,
                 time_zone: str | None = None) -> None:
     """Raise for repeated stamps or stamps going backwards within one file.
@@ -1525,6 +1550,11 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         swapped = _runs_in_reverse_order(stamps, backwards)
         if swapped:
             hint = swapped
+        elif _day_month_mixed(stamps):
+            hint = ("read with the day and the month exchanged, the stamps whose day is 12 "
+                    "or less fall in order with the others: day and month are written in "
+                    "two orders (a spreadsheet that read day-first stamps month-first where "
+                    "the day allowed?); write every stamp in one order in a copy of the file")
         elif back_days > 1.0:
             # records merely out of order are a few records apart; a jump back by days
             # or years is a logger clock reset, which sorting would turn into a false
@@ -1621,6 +1651,14 @@ def _scattered_seconds(stamps: pd.DatetimeIndex, steps: np.ndarray, describe,
         if far.size < 0.1 * len(stamps):
             continue
         first = int(far[0])
+        drift = _steady_drift(stamps, minutes)
+        if drift:
+            return (f"the stamps of these {minutes}-minute records move steadily off the "
+                    f"clock grid, {drift} ({far.size} stamps more than {JITTER_SECONDS:g} s "
+                    f"from a whole minute, the first at {describe(first)}): a logger clock "
+                    "running fast or slow and not set during the record? Write each stamp "
+                    "as the whole minute of its interval's end (or start) in a copy of the "
+                    "file")
         return (f"the stamps of these {minutes}-minute records carry seconds that vary "
                 f"from record to record ({stamps[first]:%Y-%m-%d %H:%M:%S} at "
                 f"{describe(first)}; {far.size} stamps more than {JITTER_SECONDS:g} s from "
@@ -1629,6 +1667,33 @@ def _scattered_seconds(stamps: pd.DatetimeIndex, steps: np.ndarray, describe,
                 "that stamps the moment it writes each record? Write each stamp as the "
                 "whole minute of its interval's end (or start) in a copy of the file")
     return ""
+
+
+def _steady_drift(stamps: pd.DatetimeIndex, minutes: int) -> str:
+    """Where the stamps' distance from the `minutes` grid grows (or shrinks) steadily, a
+    clock drifting by seconds a day (layouts31: named a logger stamping the moment it
+    writes), the drift as text ("+3.0 s a day, from +0 s to +120 s"), else ''.
+
+    Steady: 99 % of the steps of the distance move one way or stay within the jitter
+    rounding (:data:`JITTER_SECONDS`), and the distance moves 60 s or more in all. A
+    quartz clock drifts so by a few seconds a day (common practice).
+    """
+    index = pd.DatetimeIndex(stamps)
+    since = np.asarray((index - index[0].floor("D")) / pd.Timedelta(seconds=1), dtype=float)
+    period = minutes * 60.0
+    offset = (since + period / 2) % period - period / 2
+    offset = np.unwrap(offset, period=period)
+    steps = np.diff(offset)
+    if steps.size < 2 or abs(offset[-1] - offset[0]) < 60.0:
+        return ""
+    sign = np.sign(offset[-1] - offset[0])
+    if np.mean(sign * steps >= -JITTER_SECONDS) < 0.99:
+        return ""
+    days = (index[-1] - index[0]) / pd.Timedelta(days=1)
+    if days <= 0:
+        return ""
+    rate = (offset[-1] - offset[0]) / days
+    return f"by {rate:+.1f} s a day (from {offset[0]:+.0f} s to {offset[-1]:+.0f} s)"
 
 
 def _midnight_of_the_day_it_ends(stamps: pd.DatetimeIndex, row: int) -> bool:

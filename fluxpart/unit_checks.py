@@ -450,8 +450,10 @@ def _zero_code_message(converted: dict, columns: dict, interval_minutes: int, mi
              "a flux is not exactly 0 that often")
     if _enough_days(present.size, interval_minutes):
         return (f"column {columns['nee']!r} (nee): {found}: 0 looks like the logger's code "
-                "for a missing value: add 0 to [input] missing (or list nee in [input] "
-                "accept_units to keep the zeros as measured)"), None
+                "for a missing value: add 0 to [input] missing, or nee = [0] to "
+                "[input.missing_by_variable] where 0 is a reading in other columns (Rg at "
+                "night) (or list nee in [input] accept_units to keep the zeros as "
+                "measured)"), None
     return None, f"nee: {found}; if 0 marks missing values, add 0 to [input] missing"
 
 
