@@ -9,7 +9,7 @@ records kept. On the invented demo grassland, values below -10 µmol m-2 s-1 rem
 the annual NEE from -241 to -110 g C m-2 (GPP -132), and values above +5 removed moved it
 to -301 (Reco -150), without a word; a window whose limit is written into the removed
 records instead (values held at -15) repeats that value, which the repeated-value check
-names already.
+names already (and this one too).
 
 A measured flux cannot show such an edge. Whatever the true flux does, each record adds
 its own random error, a Laplace-like spread with a scale of tenths of µmol m-2 s-1 at
@@ -54,7 +54,7 @@ BAND = 0.5
 BEYOND_SHARE = 0.05
 #: Values the band inside a level must hold [records]: the band beyond it then expects
 #: at least 7 from a natural tail (0.15 of 50), so 2 or fewer is no chance (Poisson
-#: probability about 0.03, and the worst of the 262 generated years kept 0.15).
+#: probability about 0.02, and the worst of the 262 generated years kept 0.15).
 _MIN_INSIDE = 50
 #: The band inside a level must hold at least this share of the band next to it [1]:
 #: a cut falls inside the body of the values, where their density is level or rising
@@ -197,7 +197,8 @@ def cut_nee(nee, stamps=None, columns=None) -> str | None:
     return (f"NEE (column {column!r}) ends abruptly{where} "
             + " and ".join(found)
             + ": a measured flux's random error spreads its values over any level the "
-            "flux reaches, so values beyond a limit were removed (a plausibility window of "
-            "a logger or processing program, or a flag set by value); the gaps are filled "
-            "from the smaller fluxes kept, which moves the budget: restore the values and "
-            "screen them by their quality tests, not by their size")
+            "flux reaches, so values beyond a limit were removed or written as the limit (a "
+            "plausibility window of a logger or processing program, or a flag set by "
+            "value); the gaps are filled from the smaller fluxes kept, which moves the "
+            "budget: restore the values and screen them by their quality tests, not by "
+            "their size")

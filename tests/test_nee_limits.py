@@ -51,6 +51,8 @@ def test_the_demo_with_values_beyond_a_limit_removed_is_named(demo_nee):
     assert "ends abruptly below" in low and " and above" not in low
     high = cut_nee(np.where(nee > 5, np.nan, nee))
     assert high is not None and "above 5" in high
+    # values written as the limit (named as one value repeated as well) end there too
+    assert "below -15 " in cut_nee(np.clip(nee, -15.0, None))
     # a limit beyond every value the site reaches leaves no edge
     assert cut_nee(np.where(nee < -40, np.nan, nee)) is None
 
