@@ -1,4 +1,5 @@
 """NEE whose values beyond a limit were removed (round mistakes32, `fluxpart.nee_limits`)."""
+import re
 import warnings
 
 import numpy as np
@@ -6,7 +7,7 @@ import pytest
 from scipy import integrate, stats
 
 from fluxpart import Config, demo
-from fluxpart.nee_limits import BAND, BEYOND_SHARE, STAGE, cut_nee
+from fluxpart.nee_limits import BAND, BEYOND_SHARE, FAR, STAGE, cut_nee
 from fluxpart.pipeline import check_record
 
 
@@ -16,13 +17,14 @@ def demo_nee():
     return frame
 
 
-def _beyond_over_inside(beta):
-    """Counts of the bands of width BAND beyond and inside a level where a true flux with
-    a uniform density on one side of the level stops (a step), after a Laplace random
-    error of scale `beta` (Hollinger & Richardson 2005 (m)), by scipy's quadrature."""
+def _beyond_over_inside(beta, width=BAND):
+    """Counts of the `width` beyond and the band of BAND inside a level where a true flux
+    with a uniform density on one side of the level stops (a step), after a Laplace
+    random error of scale `beta` (Hollinger & Richardson 2005 (m)), by scipy's
+    quadrature."""
     def density(x):      # measured density at x (level at 0, true values at x >= 0)
         return stats.laplace(scale=beta).cdf(x)     # P(error <= x): true values >= 0, uniform
-    beyond = integrate.quad(density, -BAND, 0.0)[0]
+    beyond = integrate.quad(density, -width, 0.0)[0]
     inside = integrate.quad(density, 0.0, BAND)[0]
     return beyond / inside
 
@@ -38,6 +40,9 @@ def test_the_bound_lies_below_the_spill_of_any_random_error_over_a_twentieth_of_
         assert ratio == pytest.approx(closed / (BAND - closed), rel=1e-6)
         assert ratio > BEYOND_SHARE
     assert _beyond_over_inside(0.02) < BEYOND_SHARE       # the bound is not vacuous
+    # the FAR beyond a level of large fluxes holds at least the band's share
+    for beta in (0.05, 0.1, 0.3, 1.0):
+        assert _beyond_over_inside(beta, FAR) >= _beyond_over_inside(beta) > BEYOND_SHARE
 
 
 def test_the_demo_with_values_beyond_a_limit_removed_is_named(demo_nee):
@@ -100,3 +105,21 @@ def test_a_limit_applied_to_the_summer_only_is_named_with_its_months(demo_nee):
     assert text is not None and "in 2021-06 .. 2021-08 below -9.99" in text
     assert cut_nee(cut) is None
     assert cut_nee(nee, demo_nee.index) is None
+
+
+def test_a_crop_whose_uptake_sweeps_through_large_fluxes_is_judged_over_two_umol():
+    """Known-truth recovery on invented data: the demo maize's uptake spreads over 10-40
+    µmol m-2 s-1 in a short season, 30-40 values in a band of 0.5 there; its values below
+    -10 removed (annual NEE +605.6, nighttime GPP -605.6 g C m-2, named before only as
+    the methods' disagreement) or below -20 (+318.9) are named by the 2 µmol m-2 s-1
+    beyond the level (hourly, half the values: below -10 only, the band at -20 holds under
+    25); the maize itself, hourly too, is quiet."""
+    for minutes in (30, 60):
+        frame, _ = demo.site_year(seed=0, variant="c4", interval_minutes=minutes)
+        nee = frame["nee"].to_numpy(dtype=float)
+        assert cut_nee(nee, frame.index) is None
+        for level in ((-10.0, -20.0) if minutes == 30 else (-10.0,)):
+            text = cut_nee(np.where(nee < level, np.nan, nee), frame.index)
+            assert text is not None
+            found = float(re.search(r"ends abruptly below (-[0-9.]+) ", text)[1])
+            assert abs(found - level) < 0.05
