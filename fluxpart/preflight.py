@@ -71,6 +71,9 @@ below half the potential radiation) in
 60 days of whole months, not in the rest
 NEE of one sign only next to 0, by day    input (nee one sign)                no
 or at night (values of one sign removed)
+NEE ending abruptly 2 µmol m-2 s-1 or     input (nee cut)                     no
+more from 0 (values beyond a limit
+removed)
 a column repeating its value in every     input (tair twice, ...)             no
 other record (a coarser file joined)
 a gap of measured NEE longer than the     gap filling (quality C only)        no
@@ -95,7 +98,16 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from . import day_sign, nee_smoothing, night_uptake, rg_dim, rg_zeros, solar, tair_days
+from . import (
+    day_sign,
+    nee_limits,
+    nee_smoothing,
+    night_uptake,
+    rg_dim,
+    rg_zeros,
+    solar,
+    tair_days,
+)
 from .column_faults import (
     PLACEHOLDER_VARIABLES,
     censored_nee,
@@ -466,6 +478,11 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                 screened.index, names)
         if text:
             findings.append(Finding("input (nee filled)", text, False))
+        # values beyond a plausibility limit removed (round mistakes32)
+        text = nee_limits.cut_nee(screened["nee"].to_numpy(dtype=float), screened.index,
+                                    names)
+        if text:
+            findings.append(Finding(nee_limits.STAGE, text, False))
         if is_night is not None:
             text = censored_nee(screened["nee"].to_numpy(dtype=float), is_night,
                                 screened.index, names)

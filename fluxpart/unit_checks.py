@@ -1302,6 +1302,18 @@ def frame_messages(frame, potential=None, interval_minutes: int = 30,
     return lines
 
 
+def _mostly_outside_without_a_code(name: str, present: np.ndarray) -> bool:
+    """True where more than :data:`IMPLAUSIBLE_SHARE` of `present` (and at least 5 values)
+    lie outside `name`'s plausible range once the most repeated outside value, where it
+    occurs 3 times or more (a missing-data code, which screening reads as missing), is
+    set aside: the reader's share rule of :func:`implausible_message` (round mistakes32)."""
+    outside = _outside(name, present)
+    code, count = most_repeated(present[outside])
+    if count >= 3:
+        outside &= present != code
+    return bool(outside.mean() > IMPLAUSIBLE_SHARE and outside.sum() >= _IMPLAUSIBLE_MIN_COUNT)
+
+
 def _frame_text(message: str, interval_minutes: int) -> str:
     """A reader's message about a column, worded for a caller's frame (the conversion
     to call in place of the ``[input.units]`` setting)."""
@@ -1343,6 +1355,13 @@ def frame_refusal(frame, interval_minutes: int = 30, accept_units=()) -> str | N
     its stage with a warning and the run goes on as before. In a caller's frame the same column was screened out record by record and
     the run stopped later on a symptom: an air temperature in K gave "nighttime
     partitioning (E0): no 15-day window has 6 measured night records spanning 5 K".
+    A column whose median is plausible but more than :data:`IMPLAUSIBLE_SHARE` of whose
+    values are not (the reader's share rule, one repeated code set aside as the missing
+    value screening reads it as; u* left to the preflight's wind-speed rule, which names
+    the cause) is refused too (round mistakes32): latent heat in
+    W m-2 mapped as NEE (median 52, a third above 100) ran with the third screened out
+    and the rest read as µmol m-2 s-1, annual NEE −241 → +14,400 g C m-2 on the demo,
+    only the methods' disagreement named, where the reader refuses the same column.
     The same happened to a ``nee_flag`` of the opposite convention (1 or True for a
     good record), which rejected 99.9 % of the example's records: a flag rejecting
     more than :data:`_FLAG_REFUSE` of them is refused here, naming the convention
@@ -1362,7 +1381,11 @@ def frame_refusal(frame, interval_minutes: int = 30, accept_units=()) -> str | N
             continue
         values = frame[name].to_numpy(dtype=float)
         present = values[np.isfinite(values)]
-        if present.size < 48 or not _outside(name, np.array([float(np.median(present))]))[0]:
+        # the share rule leaves u* to the preflight, whose yearly-median rule names a wind
+        # speed mapped as ustar (its gusts above 5 m s-1) by its cause
+        if present.size < 48 or not (_outside(name, np.array([float(np.median(present))]))[0]
+                                     or (name != "ustar"
+                                         and _mostly_outside_without_a_code(name, present))):
             continue
         message = implausible_message(name, values, values, None, name, (), interval_minutes)
         if message:

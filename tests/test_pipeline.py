@@ -258,6 +258,33 @@ def test_a_frame_column_in_another_unit_or_a_flag_of_the_other_convention_is_ref
     assert frame_refusal(frame) is None
 
 
+def test_a_frame_column_mostly_but_not_in_median_out_of_range_is_refused_as_the_reader_does():
+    """Round mistakes32: latent heat (W m-2) mapped as NEE has a plausible median (about
+    50) but a third of its values above 100 µmol m-2 s-1 (midday latent heat reaches
+    hundreds of W m-2 wherever water evaporates: an evaporative fraction of 0.4-0.8 of
+    the available energy (m)). The reader refuses that column (more than 5 % outside);
+    a caller's frame ran with the third screened out and the rest read as µmol, annual
+    NEE -241 -> +14,400 g C m-2 on the demo, only the methods' disagreement named. Now
+    refused naming the column; a missing-data code written into a fifth of the records
+    (screening reads it as missing, as before) is still no refusal."""
+    from fluxpart.errors import ImplausibleValueError
+    from fluxpart.unit_checks import frame_refusal
+    frame, _ = demo.site_year(seed=0)
+    rng = np.random.default_rng(3)
+    latent = 0.4 * frame["rg"].clip(lower=0) + 5 + rng.normal(0, 8, len(frame))
+    as_nee = frame.assign(nee=latent.where(frame["nee"].notna()))
+    present = as_nee["nee"].dropna()
+    assert -100 < present.median() < 100 and (present > 100).mean() > 0.05
+    with pytest.raises(ImplausibleValueError, match=r"'nee'.*outside the plausible range"):
+        process(as_nee, demo.site())
+    coded = frame.assign(nee=frame["nee"].mask(rng.random(len(frame)) < 0.2, -9999.0))
+    assert frame_refusal(coded) is None
+    # the same share of values outside without one repeated code is refused
+    scattered = frame.assign(nee=frame["nee"].mask(rng.random(len(frame)) < 0.2,
+                                                   rng.uniform(150, 400, len(frame))))
+    assert "'nee'" in frame_refusal(scattered)
+
+
 def test_zoned_index_is_converted_and_extra_columns_ignored():
     """Issue 15: a tz-aware index is converted with Site.utc_offset; an extra column is
     ignored; both are noted in the warnings and issued as FluxpartWarning."""

@@ -1,0 +1,125 @@
+"""NEE whose values beyond a limit were removed (round mistakes32, `fluxpart.nee_limits`)."""
+import re
+import warnings
+
+import numpy as np
+import pytest
+from scipy import integrate, stats
+
+from fluxpart import Config, demo
+from fluxpart.nee_limits import BAND, BEYOND_SHARE, FAR, STAGE, cut_nee
+from fluxpart.pipeline import check_record
+
+
+@pytest.fixture(scope="module")
+def demo_nee():
+    frame, _ = demo.site_year(seed=0)
+    return frame
+
+
+def _beyond_over_inside(beta, width=BAND):
+    """Counts of the `width` beyond and the band of BAND inside a level where a true flux
+    with a uniform density on one side of the level stops (a step), after a Laplace
+    random error of scale `beta` (Hollinger & Richardson 2005 (m)), by scipy's
+    quadrature."""
+    def density(x):      # measured density at x (level at 0, true values at x >= 0)
+        return stats.laplace(scale=beta).cdf(x)     # P(error <= x): true values >= 0, uniform
+    beyond = integrate.quad(density, -width, 0.0)[0]
+    inside = integrate.quad(density, 0.0, BAND)[0]
+    return beyond / inside
+
+
+def test_the_bound_lies_below_the_spill_of_any_random_error_over_a_twentieth_of_a_umol():
+    """The sharpest true edge, a step, still spills beyond a level: beta/2 (1 - e^(-w/beta))
+    against w minus that. Laplace errors of 0.05 µmol m-2 s-1 (a tenth of the smallest
+    reported at small fluxes, Richardson et al. 2006 (m)) spill more than BEYOND_SHARE;
+    the closed form agrees with scipy's quadrature."""
+    for beta in (0.05, 0.1, 0.3, 1.0):
+        ratio = _beyond_over_inside(beta)
+        closed = beta / 2 * (1 - np.exp(-BAND / beta))
+        assert ratio == pytest.approx(closed / (BAND - closed), rel=1e-6)
+        assert ratio > BEYOND_SHARE
+    assert _beyond_over_inside(0.02) < BEYOND_SHARE       # the bound is not vacuous
+    # the FAR beyond a level of large fluxes holds at least the band's share
+    for beta in (0.05, 0.1, 0.3, 1.0):
+        assert _beyond_over_inside(beta, FAR) >= _beyond_over_inside(beta) > BEYOND_SHARE
+
+
+def test_the_demo_with_values_beyond_a_limit_removed_is_named(demo_nee):
+    """Known-truth recovery on invented data: the demo's NEE below -10 or above +5
+    µmol m-2 s-1 removed (5.5 % and 2.8 % of the values; annual NEE moved by +132 and -59
+    g C m-2, silent before) is named with the level; the demo itself is quiet."""
+    nee = demo_nee["nee"].to_numpy(dtype=float)
+    assert cut_nee(nee) is None
+    low = cut_nee(np.where(nee < -10, np.nan, nee), columns={"nee": "co2_flux"})
+    assert low is not None and "'co2_flux'" in low and "below -9.99" in low
+    assert "ends abruptly below" in low and " and above" not in low
+    high = cut_nee(np.where(nee > 5, np.nan, nee))
+    assert high is not None and "above 5" in high
+    # values written as the limit (named as one value repeated as well) end there too
+    assert "below -15 " in cut_nee(np.clip(nee, -15.0, None))
+    # a limit beyond every value the site reaches leaves no edge
+    assert cut_nee(np.where(nee < -40, np.nan, nee)) is None
+
+
+def test_a_natural_edge_with_the_random_error_and_coarse_values_are_quiet(demo_nee):
+    """An invented flux whose true values stop at a level (uniform on [-12, 0]) measured
+    with a Laplace error of 0.3 µmol m-2 s-1 (Richardson et al. 2006 (m)) is quiet, the
+    same cut after the error is named; values written to whole µmol m-2 s-1 are too
+    coarse to judge, values to 0.1 are judged."""
+    rng = np.random.default_rng(4)
+    true = rng.uniform(-12.0, 0.0, 12000)
+    measured = true + rng.laplace(0.0, 0.3, true.size)
+    assert cut_nee(measured) is None
+    assert cut_nee(np.where(measured < -11.0, np.nan, measured)) is not None
+    nee = demo_nee["nee"].to_numpy(dtype=float)
+    cut = np.where(nee < -10, np.nan, nee)
+    assert cut_nee(np.round(nee, 1)) is None
+    assert cut_nee(np.round(cut, 1)) is not None
+    assert cut_nee(np.round(cut)) is None
+
+
+def test_check_names_the_cut_as_a_preflight_warning(demo_nee):
+    """Through the preflight (`check` and `run`): the demo with values above 5 removed
+    by its site flag (a flag set by value) is named, the demo not."""
+    flagged = demo_nee.assign(nee_flag=np.where(demo_nee["nee"] > 5, 2.0,
+                                                demo_nee["nee_flag"]))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        _, findings = check_record(flagged, demo.site(), Config())
+        _, clean = check_record(demo_nee, demo.site(), Config())
+    named = [f for f in findings if f.stage == STAGE]
+    assert len(named) == 1 and not named[0].fatal and "above 5" in named[0].message
+    assert not [f for f in clean if f.stage == STAGE]
+
+
+def test_a_limit_applied_to_the_summer_only_is_named_with_its_months(demo_nee):
+    """Known-truth recovery on invented data: the demo's values below -10 µmol m-2 s-1
+    removed from June to August only (annual NEE +53.7, GPP -53.7 g C m-2, silent
+    before; the whole record still holds May's and September's) are named with the three
+    months; without the stamps, or with the whole record clean, nothing is named."""
+    nee = demo_nee["nee"].to_numpy(dtype=float)
+    month = demo_nee.index.month
+    cut = np.where((month >= 6) & (month <= 8) & (nee < -10), np.nan, nee)
+    text = cut_nee(cut, demo_nee.index)
+    assert text is not None and "in 2021-06 .. 2021-08 below -9.99" in text
+    assert cut_nee(cut) is None
+    assert cut_nee(nee, demo_nee.index) is None
+
+
+def test_a_crop_whose_uptake_sweeps_through_large_fluxes_is_judged_over_two_umol():
+    """Known-truth recovery on invented data: the demo maize's uptake spreads over 10-40
+    µmol m-2 s-1 in a short season, 30-40 values in a band of 0.5 there; its values below
+    -10 removed (annual NEE +605.6, nighttime GPP -605.6 g C m-2, named before only as
+    the methods' disagreement) or below -20 (+318.9) are named by the 2 µmol m-2 s-1
+    beyond the level (hourly, half the values: below -10 only, the band at -20 holds under
+    25); the maize itself, hourly too, is quiet."""
+    for minutes in (30, 60):
+        frame, _ = demo.site_year(seed=0, variant="c4", interval_minutes=minutes)
+        nee = frame["nee"].to_numpy(dtype=float)
+        assert cut_nee(nee, frame.index) is None
+        for level in ((-10.0, -20.0) if minutes == 30 else (-10.0,)):
+            text = cut_nee(np.where(nee < level, np.nan, nee), frame.index)
+            assert text is not None
+            found = float(re.search(r"ends abruptly below (-[0-9.]+) ", text)[1])
+            assert abs(found - level) < 0.05
