@@ -287,7 +287,8 @@ def _correlation(a: np.ndarray, b: np.ndarray, minimum: int = _MIN_PAIRS) -> tup
     count = int(ok.sum())
     if count < minimum:
         return math.nan, count
-    x, y = a[ok] - a[ok].mean(), b[ok] - b[ok].mean()
+    x, y = a[ok], b[ok]                 # each taken once: the same values, the same bits
+    x, y = x - x.mean(), y - y.mean()
     # sums of products, not BLAS dot products: the same bits on every CPU and thread count
     scale = math.sqrt(float(np.sum(x * x)) * float(np.sum(y * y)))
     return (float(np.sum(x * y)) / scale if scale > 0 else math.nan), count
