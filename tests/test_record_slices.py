@@ -194,3 +194,15 @@ def test_column_correlation_is_numpys_corrcoef_of_the_finite_pairs():
     assert _bits(r) == _bits(before)
     r, count = column_faults._correlation(a[:20], b[:20])
     assert np.isnan(r) and count == int(ok[:20].sum())
+    # integer and single-precision columns: the same bits as the expression before
+    for dtype in (np.int64, np.float32):
+        u = (rng.normal(size=3000) * 50).astype(dtype)
+        v = (0.5 * u + rng.normal(size=3000) * 50).astype(dtype)
+        x, y = u - u.mean(), v - v.mean()
+        before = float(np.sum(x * y)) / np.sqrt(float(np.sum(x * x)) * float(np.sum(y * y)))
+        assert _bits(column_faults._correlation(u, v)[0]) == _bits(before), dtype
+    # the centring in place works on copies: the caller's columns keep their values
+    kept_a, kept_b = a.copy(), b.copy()
+    column_faults._correlation(a, b)
+    np.testing.assert_array_equal(a, kept_a)
+    np.testing.assert_array_equal(b, kept_b)
