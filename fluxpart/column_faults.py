@@ -283,11 +283,16 @@ def swapped_temperatures_in_months(tair, tsoil, stamps, interval_minutes: float,
 
 def _correlation(a: np.ndarray, b: np.ndarray, minimum: int = _MIN_PAIRS) -> tuple[float, int]:
     """Pearson correlation of the pairs both present and their count (NaN below `minimum`)."""
-    ok = np.isfinite(a) & np.isfinite(b)
-    count = int(ok.sum())
+    ok = np.isfinite(a)
+    ok &= np.isfinite(b)
+    count = int(np.count_nonzero(ok))
     if count < minimum:
         return math.nan, count
-    x, y = a[ok] - a[ok].mean(), b[ok] - b[ok].mean()
+    # each column taken once (a copy) and centred in place: the values of
+    # a[ok] - a[ok].mean(), without two more selections and two more arrays
+    x, y = (v[ok] if v.dtype.kind == "f" else v[ok].astype(np.float64) for v in (a, b))
+    x -= x.mean()
+    y -= y.mean()
     # sums of products, not BLAS dot products: the same bits on every CPU and thread count
     scale = math.sqrt(float(np.sum(x * x)) * float(np.sum(y * y)))
     return (float(np.sum(x * y)) / scale if scale > 0 else math.nan), count

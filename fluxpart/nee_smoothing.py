@@ -129,13 +129,13 @@ def smoothed_nee(nee, is_night, columns=None, stamps=None) -> str | None:
     # own np.diff is the same slice of the whole's), and the pairs counted by a running
     # sum, so a part of too few pairs costs nothing (a record of n months has 2n parts)
     counted = np.concatenate(([0], np.cumsum(pair)))
+    parts = _RecordChanges(change, usable, pair)
     for first in firsts:
         for (start, end), where in (((0, first), f"until {months[first - 1]}"),
                                     ((first, x.size), f"from {months[first]}")):
             if end - start < 3 or counted[end - 2] - counted[start] < _PART_MIN_PAIRS:
                 continue
-            found = _part_correlation(change[start:end - 1], usable[start:end - 1],
-                                      pair[start:end - 2], _PART_MIN_PAIRS)
+            found = parts.correlation(start, end, _PART_MIN_PAIRS)
             if found is not None and found[0] >= _PART_CORRELATION:
                 return _message(column, found[0], found[1], f" {where}")
     return None
@@ -172,7 +172,13 @@ def _part_correlation(change, usable, pair, minimum):
     pair = pair & (first != 0.0) & (second != 0.0)      # a new array: `pair` may be a view
     if int(pair.sum()) < minimum:
         return None
-    a, b = first[pair], second[pair]
+    return _clipped_correlation(first[pair], second[pair], changes)
+
+
+def _clipped_correlation(a, b, changes):
+    """(correlation, pairs) of the pairs of changes (`a`, `b`), each clipped at five scaled
+    median absolute deviations of the night changes `changes`; None where they have no
+    spread (see :func:`_part_correlation`)."""
     bound = 5.0 * 1.4826 * float(np.median(np.abs(changes)))
     if not bound > 0.0:
         return None
@@ -181,7 +187,46 @@ def _part_correlation(change, usable, pair, minimum):
         return None
     # sums of products, not BLAS: the same bits on every CPU and thread count
     a, b = a - a.mean(), b - b.mean()
-    return float(np.sum(a * b) / np.sqrt(np.sum(a * a) * np.sum(b * b))), int(pair.sum())
+    return float(np.sum(a * b) / np.sqrt(np.sum(a * a) * np.sum(b * b))), int(a.size)
+
+
+class _RecordChanges:
+    """:func:`_part_correlation` of the parts of one record, each a run of its records.
+
+    The part of records ``start .. end - 1`` has the changes ``change[start:end - 1]``
+    and the pairs ``pair[start:end - 2]``; its night changes, its zero changes and its
+    pairs without a zero change are each a contiguous run of those of the whole record
+    (taken once, in time order), found by running counts. A part then costs its median
+    and its clipped sums only, not a pass of selections over its records: the record of
+    n months has 2n parts, so those passes grew with the square of its length. Each part
+    gets the same values in the same order as its own selections, so the same bits.
+    """
+
+    def __init__(self, change, usable, pair):
+        first, second = change[:-1], change[1:]
+        kept = pair & (first != 0.0) & (second != 0.0)
+        self._changes = change[usable]
+        self._used = np.concatenate(([0], np.cumsum(usable)))
+        self._zeros = np.concatenate(([0], np.cumsum(usable & (change == 0.0))))
+        self._pairs = np.concatenate(([0], np.cumsum(pair)))
+        self._kept = np.concatenate(([0], np.cumsum(kept)))
+        self._first, self._second = first[kept], second[kept]
+
+    def correlation(self, start, end, minimum):
+        """:func:`_part_correlation` of the part of records ``start .. end - 1`` (at
+        least 3)."""
+        if int(self._pairs[end - 2] - self._pairs[start]) < minimum:
+            return None
+        low, high = self._used[start], self._used[end - 1]
+        # np.mean of the part's (changes == 0): its count of zeros over its changes
+        if high > low and (int(self._zeros[end - 1] - self._zeros[start]) / int(high - low)
+                           > _MAX_ZERO_SHARE):
+            return None
+        first, last = self._kept[start], self._kept[end - 2]
+        if int(last - first) < minimum:
+            return None
+        return _clipped_correlation(self._first[first:last], self._second[first:last],
+                                    self._changes[low:high])
 
 
 #: The longest running mean whose length :func:`running_mean_length` looks for [records]:
