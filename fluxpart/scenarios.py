@@ -26,7 +26,9 @@ The physics is generic and published in form, with our own parameter ranges:
   climates, soil moisture;
 - measurement: Laplace random error whose standard deviation grows linearly with
   |NEE| (form of Richardson et al. 2006), night-time flux loss below a u*
-  threshold (fraction measured (u*/u*_t)^p), night-heavy rejection, instrument
+  threshold (fraction measured (u*/u*_t)^p; or, with ``night_loss="gradual"``, a
+  loss that fades smoothly and goes on above the threshold, see
+  :func:`gradual_share`), night-heavy rejection, instrument
   dropouts and outages of days to three weeks, driver gaps, spikes and
   site-flagged records.
 
@@ -59,11 +61,19 @@ from .site import Site
 from .solar import potential_radiation
 from .variables import vpd_from_rh
 
-__all__ = ["ARCHETYPES", "Scenario", "SiteYear", "draw", "generate", "site_years"]
+__all__ = ["ARCHETYPES", "NIGHT_LOSSES", "Scenario", "SiteYear", "draw", "generate",
+           "gradual_share", "site_years"]
 
 _BASE_MINUTES = 30
 _VPD_REFERENCE = 10.0  # hPa, Lasslop et al. (2010)
 _NIGHT_RG = 10.0       # W m-2: below this the tower treats a record as night
+
+#: Shapes of the night flux loss at low u*: ``"step"`` (default; all the loss below the
+#: planted threshold) and ``"gradual"`` (:func:`gradual_share`; the threshold is the u*
+#: where 99 % of the flux is measured, and some loss goes on up to it).
+NIGHT_LOSSES = ("step", "gradual")
+#: Largest share of the night flux lost in the calmest records of the gradual shape.
+_GRADUAL_DEPTH = 0.9
 
 #: Archetypes: fixed facts (place, canopy type, record interval) and the ranges
 #: from which :func:`draw` samples each parameter (uniformly). Climate ranges are
@@ -145,6 +155,9 @@ class SiteYear:
         Same index: true ``gpp``, ``reco``, ``nee`` [µmol m-2 s-1].
     annual_truth : pandas.Series
         True annual sums ``gpp``, ``reco``, ``nee`` [g C m-2].
+    measured_share : numpy.ndarray or None
+        Per record, the share of the true NEE the tower measured before noise (1 by
+        day and at high u*) [1]; the u* loss planted.
     """
 
     scenario: Scenario
@@ -152,6 +165,7 @@ class SiteYear:
     site: Site
     truth: pd.DataFrame
     annual_truth: pd.Series
+    measured_share: np.ndarray | None = None
 
 
 def _uniform(rng, bounds):
@@ -311,7 +325,57 @@ def _fluxes(index, weather, site, p, step_minutes):
     return gpp, reco
 
 
-def _measure(rng, weather, gpp, reco, step_minutes, p):
+def gradual_share(ustar, u99, depth=_GRADUAL_DEPTH):
+    """Share of the night flux measured under a loss that fades smoothly with u* [1].
+
+    ``1 - depth * exp(-(u* / s)**2)``, with the scale ``s`` set so that 99 % of the
+    flux is measured at `u99`: ``s = u99 / sqrt(ln(100 depth))``. With ``depth = 0.9``
+    95 % is measured at 0.80 `u99`, 74 % at half of it, 10 % in calm air.
+
+    Parameters
+    ----------
+    ustar : array_like
+        Friction velocity [m s-1].
+    u99 : float
+        u* at which 99 % of the flux is measured [m s-1], > 0.
+    depth : float, optional
+        Share lost as u* goes to 0 [1], in (0.01, 1].
+
+    Returns
+    -------
+    numpy.ndarray
+        Measured share [1], rising monotonically from ``1 - depth`` to 1.
+
+    Notes
+    -----
+    Physical argument: the night flux the tower misses (storage below the sensor,
+    advection by drainage flows) does not stop at one u*; it fades as mixing grows,
+    so the plateau that threshold detectors look for is approached gradually (the
+    moving point test of Papale et al. 2006 takes the threshold where the class
+    means reach 99 % of the plateau above them; Gu et al. 2005 describe the
+    transition as a zone, not a point). The Gaussian fade is an invented smooth
+    member of that family, chosen for its parameter `u99`.
+
+    References
+    ----------
+    Gu, L. et al. (2005). Agricultural and Forest Meteorology 128, 179–197 (m).
+
+    Papale, D. et al. (2006). Biogeosciences 3, 571–583. doi:10.5194/bg-3-571-2006
+    """
+    scale = float(u99) / np.sqrt(np.log(100.0 * float(depth)))
+    return 1.0 - depth * np.exp(-(np.asarray(ustar, dtype=float) / scale) ** 2)
+
+
+def _measured_share(night, ustar, p, night_loss):
+    """Per record, the share of the true night flux the tower measures [1]."""
+    threshold = p["ustar_threshold"]
+    if night_loss == "gradual":
+        return np.where(night, gradual_share(ustar, threshold), 1.0)
+    return np.where(night & (ustar < threshold), (ustar / threshold) ** p["ustar_exponent"],
+                    1.0)
+
+
+def _measure(rng, weather, gpp, reco, step_minutes, p, night_loss="step"):
     """The tower's view of the true fluxes: loss, noise, spikes, flags and gaps."""
     n = len(weather)
     per_hour = 60 // step_minutes
@@ -319,9 +383,7 @@ def _measure(rng, weather, gpp, reco, step_minutes, p):
     nee_true = reco - gpp
     night = weather["rg_true"].to_numpy() < _NIGHT_RG
     ustar = weather["ustar"].to_numpy()
-    threshold = p["ustar_threshold"]
-    measured_share = np.where(night & (ustar < threshold),
-                              (ustar / threshold) ** p["ustar_exponent"], 1.0)
+    measured_share = _measured_share(night, ustar, p, night_loss)
     sd = p["error_intercept"] + p["error_slope"] * np.abs(nee_true)
     nee = nee_true * measured_share + rng.laplace(0.0, sd / np.sqrt(2.0), n)
     flag = np.zeros(n, dtype=np.int64)
@@ -351,16 +413,22 @@ def _measure(rng, weather, gpp, reco, step_minutes, p):
                "vpd": outage | driver_gap["tair"] | driver_gap["rh"],
                "ustar": outage | driver_gap["ustar"], "tsoil": outage | driver_gap["tsoil"]}
     return frame.assign(**{name: np.where(mask, np.nan, frame[name].to_numpy())
-                           for name, mask in missing.items()})
+                           for name, mask in missing.items()}), measured_share
 
 
-def generate(scenario: Scenario | int) -> SiteYear:
+def generate(scenario: Scenario | int, night_loss: str = "step") -> SiteYear:
     """Simulate a drawn scenario (or the scenario of a seed).
 
     Parameters
     ----------
     scenario : Scenario or int
         From :func:`draw`, or a seed passed to it.
+    night_loss : {"step", "gradual"}, optional
+        Shape of the night u* loss: ``"step"`` (default) loses flux below the
+        planted threshold only, as ``(u*/u*_t)^p``; ``"gradual"`` loses it as
+        :func:`gradual_share` with 99 % measured at the planted threshold, so
+        some loss is left above any threshold a detector reads below it. The
+        random numbers are the same: the two differ in the loss only.
 
     Returns
     -------
@@ -372,6 +440,8 @@ def generate(scenario: Scenario | int) -> SiteYear:
     The physics runs at 30 minutes; hourly records are the means of two
     half-hours, then measured. The truth is the unmeasured flux of the record.
     """
+    if night_loss not in NIGHT_LOSSES:
+        raise ConfigError(f"night_loss = {night_loss!r}: expected one of {NIGHT_LOSSES}")
     if not isinstance(scenario, Scenario):
         scenario = draw(scenario)
     p = scenario.parameters
@@ -382,8 +452,9 @@ def generate(scenario: Scenario | int) -> SiteYear:
     weather = _weather(weather_rng, index, scenario.site, p, _BASE_MINUTES)
     gpp, reco = _fluxes(index, weather, scenario.site, p, _BASE_MINUTES)
     weather, gpp, reco = _coarsen(weather, gpp, reco, scenario.interval_minutes)
-    frame = _measure(measure_rng, weather, gpp, reco, scenario.interval_minutes, p)
-    return _with_truth(scenario, frame, gpp, reco)
+    frame, share = _measure(measure_rng, weather, gpp, reco, scenario.interval_minutes, p,
+                            night_loss)
+    return _with_truth(scenario, frame, gpp, reco, share)
 
 
 def _coarsen(weather, gpp, reco, step_minutes):
@@ -399,14 +470,14 @@ def _coarsen(weather, gpp, reco, step_minutes):
             reco.reshape(-1, factor).mean(axis=1))
 
 
-def _with_truth(scenario, frame, gpp, reco) -> SiteYear:
+def _with_truth(scenario, frame, gpp, reco, share=None) -> SiteYear:
     """The site-year of `frame` with its per-record and annual truth [g C m-2]."""
     truth = pd.DataFrame({"gpp": gpp, "reco": reco, "nee": reco - gpp}, index=frame.index)
     annual = pd.Series({name: float(flux_to_carbon(truth[name].to_numpy(),
                                                    scenario.interval_minutes).sum())
                         for name in ("gpp", "reco", "nee")})
     return SiteYear(scenario=scenario, frame=frame, site=scenario.site, truth=truth,
-                    annual_truth=annual)
+                    annual_truth=annual, measured_share=share)
 
 
 def site_years(seeds):

@@ -112,3 +112,46 @@ def test_calibration_on_a_few_site_years():
         assert 0 < width < 200
         covered += row["nee_ci95_low"] <= truth["nee"] <= row["nee_ci95_high"]
     assert covered >= 1
+
+
+def test_gradual_loss_shape():
+    """The gradual shape measures 99 % of the flux at its u99 and fades monotonically.
+
+    Papale et al. (2006) (m): the moving point test takes the threshold where the night
+    flux reaches 99 % of its plateau, so the 99 % u* is the threshold a detector should
+    read. 95 % at sqrt(ln 18 / ln 90) = 0.801 of u99 and 1 - 0.9 in calm air follow from
+    the stated formula 1 - 0.9 exp(-(u*/s)^2) (invented known-truth form).
+    """
+    u99 = 0.3
+    share = scenarios.gradual_share(np.array([0.0, 0.801 * u99, u99, 2 * u99]), u99)
+    np.testing.assert_allclose(share, [0.1, 0.95, 0.99, 1.0], atol=2e-4)
+    grid = scenarios.gradual_share(np.linspace(0, 2 * u99, 101), u99)
+    assert (np.diff(grid) > 0).all()
+
+
+def test_gradual_loss_changes_only_the_night_loss(one_of_each):
+    """Known-truth recovery: the gradual option changes the loss, nothing else; default unchanged.
+
+    Same random numbers: the measured NEE of the two shapes differs by exactly the true
+    NEE times the difference of the measured shares (noise, spikes and gaps alike), by
+    day not at all; the default (`"step"`) gives the frame it gave before.
+    """
+    step = one_of_each["temperate_deciduous"]
+    seed = step.scenario.seed
+    again = scenarios.generate(seed, night_loss="step")
+    pd.testing.assert_frame_equal(again.frame, step.frame)
+    gradual = scenarios.generate(seed, night_loss="gradual")
+    pd.testing.assert_frame_equal(gradual.frame.drop(columns="nee"), step.frame.drop(columns="nee"))
+    expected = step.truth["nee"].to_numpy() * (gradual.measured_share - step.measured_share)
+    difference = (gradual.frame["nee"] - step.frame["nee"]).to_numpy()
+    measured = np.isfinite(difference)
+    np.testing.assert_allclose(difference[measured], expected[measured], atol=1e-9)
+    threshold = step.scenario.parameters["ustar_threshold"]
+    ustar = step.frame["ustar"].to_numpy()
+    above = np.isfinite(ustar) & (ustar >= threshold)
+    assert (step.measured_share[above] == 1).all()
+    assert (gradual.measured_share[above] >= 0.99).all()        # the 99 % plateau above u99
+    lost_above = (gradual.measured_share < 1) & (ustar >= 0.8 * threshold)
+    assert lost_above.sum() > 100            # the gradual loss reaches the kept side
+    with pytest.raises(ConfigError, match="night_loss"):
+        scenarios.generate(seed, night_loss="ramp")
