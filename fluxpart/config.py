@@ -571,7 +571,9 @@ class Config:
         names = cls.field_names()
         for key in mapping:
             if key not in names:
-                raise ConfigError(f"{where} {key}: unknown setting{suggest_key(key, names)}")
+                hint = (_key_hint(key, names) if where == "[processing]"
+                        else suggest_key(key, names))
+                raise ConfigError(f"{where} {key}: unknown setting{hint}")
         floats = {f.name for f in fields(cls) if f.type in ("float", "float | None")}
         values = {}
         for key, value in mapping.items():
@@ -631,6 +633,19 @@ class Config:
         if not self.events:
             del out["events"]
         return out
+
+
+def _key_hint(key: str, names) -> str:
+    """The hint for an unknown setting: the spelling of a slip, else what its words mean
+    (:func:`fluxpart.key_hints.meaning_hint`), else the nearest spelling."""
+    from .key_hints import SLIP_LIKENESS, meaning_hint
+
+    slip = difflib.get_close_matches(key, list(names), n=1, cutoff=SLIP_LIKENESS)
+    if not slip and key.lower() not in {name.lower() for name in names}:
+        meant = meaning_hint(key)
+        if meant:
+            return meant
+    return suggest_key(key, names)
 
 
 def suggest_key(key: str, valid, what: str = "settings") -> str:

@@ -1,0 +1,94 @@
+"""The hint for an unknown ``[processing]`` key, by what its words mean.
+
+An unknown key is refused with the nearest valid name (:func:`fluxpart.config.suggest_key`,
+string likeness by :mod:`difflib`). Where the key is a typing slip of a valid name that is
+right. Where it is a name of the user's own making, the nearest spelling can be a setting
+of another meaning, and a user who follows the hint gets a run that differs from the one
+meant without a further word (round mistakes33): ``ustar_fixed_threshold = 0.2`` was
+answered "did you mean 'ustar_min_threshold'?", a floor under the detected thresholds, not
+a fixed one, which on a generated deciduous forest (``scenarios.generate(7)``, detected
+above 0.2 m s-1) gave Reco +43.5 g C m-2 against the fixed run meant; ``mds_window_days``
+pointed at ``e0_window_days`` (the respiration fit's window), ``random_seed`` at
+``random_error_draws``, ``year_begin`` at ``rg_margin``, ``uncertainty_draws`` at
+``ustar_bootstrap_draws``. :func:`meaning_hint` reads the key's words and names the
+setting that does what they say, or None where none is recognised.
+"""
+
+from __future__ import annotations
+
+import re
+
+__all__ = ["meaning_hint"]
+
+#: Likeness (difflib ratio) at or above which an unknown key is a typing slip of a valid
+#: name and keeps the spelling hint: slips of one or two letters in names of 10-25
+#: letters give 0.92-0.98 (``ustar_treshold`` 0.966, ``despike_blocks_days`` 0.973),
+#: while keys of the user's own words stay below (``ustar_fixed_threshold`` against
+#: ``ustar_min_threshold`` 0.85, ``seeds`` against ``seed`` 0.89, then read by meaning).
+SLIP_LIKENESS = 0.9
+
+_FIXED_USTAR = ('; to filter every year at one u* threshold write ustar_method = "fixed" '
+                "and ustar_threshold = <value in m s-1> (ustar_min_threshold is only a floor "
+                "under the thresholds detected from the data)")
+
+
+def _words(key: str) -> set:
+    return {w for w in re.split(r"[^a-z0-9*]+", key.lower().replace("u*", "ustar")) if w}
+
+
+def meaning_hint(key: str) -> str | None:
+    """The hint for an unknown ``[processing]`` key read by its words, or None.
+
+    Parameters
+    ----------
+    key : str
+        The key as written (not a valid setting name).
+
+    Returns
+    -------
+    str or None
+        A text starting ``"; "`` naming the setting (or the pair of settings) that does
+        what the key's words say: a fixed u* threshold, a floor under the detected
+        thresholds, the seed, the first day of the budget year, the number of
+        random-error or bootstrap draws, the gap-filling window, the night Rg
+        threshold, despiking, the canopy class (a ``[site]`` key), or that both
+        partitionings always run; None where no rule
+        applies (the caller keeps the spelling hint).
+
+    Notes
+    -----
+    Pure and cheap. Only the hint text of a refusal: a run is never changed by it.
+
+    References
+    ----------
+    Python documentation, ``difflib.SequenceMatcher.ratio`` (the likeness of
+    :data:`SLIP_LIKENESS`) (m).
+    """
+    words = _words(key)
+    ustar = bool(words & {"ustar", "u", "friction", "turbulence"})
+    threshold = bool(words & {"threshold", "thresh", "thr", "limit", "value", "cutoff"})
+    if "fixed" in words and (ustar or threshold):
+        return _FIXED_USTAR
+    if ustar and words & {"floor", "minimum", "min", "lowest", "lower"}:
+        return "; did you mean 'ustar_min_threshold' (a floor under the detected u* thresholds, m s-1)?"
+    if words & {"seed", "seeds", "rng"}:
+        return "; did you mean 'seed' (the seed of every random draw)?"
+    if "year" in words and words & {"begin", "begins", "start", "starts", "first", "from"}:
+        return "; did you mean 'year_start' (the first day of the budget year, \"MM-DD\")?"
+    if words & {"draws", "samples", "realisations", "realizations", "iterations", "runs"}:
+        if words & {"bootstrap", "ustar"}:
+            return "; did you mean 'ustar_bootstrap_draws' (draws of the u* threshold)?"
+        return "; did you mean 'random_error_draws' (draws of the random-error interval)?"
+    if "window" in words and words & {"gap", "gapfill", "gapfilling", "fill", "filling", "mds"}:
+        return ("; did you mean 'gapfill_max_window_days' (the widest window in which the "
+                "gap filling looks for similar records)?")
+    if (words & {"night", "dark"} or "rg" in words or "radiation" in words) and threshold:
+        return "; did you mean 'night_rg_threshold' (night is Rg below it, W m-2)?"
+    if words & {"spike", "spikes", "despike", "despiking", "outlier", "outliers"}:
+        return "; did you mean 'despike_z' (the despiking limit in robust standard deviations)?"
+    if words & {"partition", "partitioning", "partitions"}:
+        return ("; both partitionings always run (the nighttime and daytime columns side by "
+                "side): no setting chooses one")
+    if "canopy" in words:
+        return '; the canopy class belongs under [site]: canopy = "short" or "tall"'
+    return None
