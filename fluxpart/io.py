@@ -72,6 +72,7 @@ from .errors import (
     TimestampError,
     UnitError,
 )
+from .key_hints import table_meaning_hint
 from .site import Site
 from .stamp_places import (
     half_interval_message,
@@ -1169,7 +1170,9 @@ def _check_keys(table: dict, valid, where: str, spell: str) -> None:
                 close = difflib.get_close_matches(key, tables, n=1, cutoff=0.5)
                 hint = f"; did you mean [{parent}.{close[0]}]?" if close else ""
                 raise ConfigError(f"table [{parent}.{key}] is unknown{hint}")
-            hint = suggest_key(key, valid, "keys" if "table" not in where else "tables")
+            hint = (table_meaning_hint(key, where[1:-1], valid)
+                    if where in ("[site]", "[input]") else None)
+            hint = hint or suggest_key(key, valid, "keys" if "table" not in where else "tables")
             raise ConfigError(f"{where} {spell.format(key=key)} is unknown{hint}")
 
 

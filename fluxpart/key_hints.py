@@ -18,7 +18,7 @@ from __future__ import annotations
 
 import re
 
-__all__ = ["meaning_hint"]
+__all__ = ["meaning_hint", "table_meaning_hint"]
 
 #: Likeness (difflib ratio) at or above which an unknown key is a typing slip of a valid
 #: name and keeps the spelling hint: slips of one or two letters in names of 10-25
@@ -91,4 +91,68 @@ def meaning_hint(key: str) -> str | None:
                 "side): no setting chooses one")
     if "canopy" in words:
         return '; the canopy class belongs under [site]: canopy = "short" or "tall"'
+    return None
+
+
+def table_meaning_hint(key: str, table: str, valid) -> str | None:
+    """The hint for an unknown ``[site]`` or ``[input]`` key read by its words, or None.
+
+    Parameters
+    ----------
+    key : str
+        The key as written.
+    table : {"site", "input"}
+        The table it stands in.
+    valid : collection of str
+        The table's valid keys; a typing slip of one of them (difflib likeness at or
+        above :data:`SLIP_LIKENESS`, or the same name in other case) gets None, so the
+        caller keeps the spelling hint.
+
+    Returns
+    -------
+    str or None
+        A text starting ``"; "``: under ``[site]`` a time zone's name or offset
+        (``utc_offset`` in hours, a named zone being ``[input] time_zone``) or a
+        vegetation class (``canopy``); under ``[input]`` the missing-value codes
+        (``missing``), the stamp's place in its interval (``time_marks``) or the stamp
+        column (``time_column``). None where no rule applies.
+
+    Notes
+    -----
+    The spelling alone sent ``timestamp_position`` to ``time_zone``, ``na_values`` to
+    ``interval_minutes`` and ``timestamp`` to ``time_marks`` (round mistakes33); each of
+    those, followed, is refused by its own check, so the cost was a second refusal, not
+    a number.
+
+    References
+    ----------
+    Python documentation, ``difflib.get_close_matches`` (m).
+    """
+    import difflib
+
+    valid = list(valid)
+    if (difflib.get_close_matches(key, valid, n=1, cutoff=SLIP_LIKENESS)
+            or key.lower() in {v.lower() for v in valid}):
+        return None
+    words = _words(key)
+    if table == "site":
+        if words & {"timezone", "tz", "zone", "utc", "gmt", "offset"}:
+            return ("; did you mean 'utc_offset' (hours from UTC of the file's standard time, "
+                    "e.g. 1.0)? A zone's name such as \"Europe/Berlin\" goes under [input] "
+                    "time_zone")
+        if words & {"vegetation", "ecosystem", "landcover", "land", "cover", "pft", "biome"}:
+            return '; did you mean \'canopy\' ("short" for crops and grass, "tall" for forest)?'
+        return None
+    if table == "input":
+        if "format" in words:           # a stamp's format: the spelling finds time_format
+            return None
+        if words & {"na", "nan", "nodata", "null", "fill", "missing", "missings",
+                    "nodatavalue"}:
+            return "; did you mean 'missing' (the codes written for a missing value, e.g. [-9999])?"
+        if words & {"position", "positions", "marks", "mark", "label", "convention",
+                    "anchor", "alignment"}:
+            return ("; did you mean 'time_marks' (\"start\" or \"end\": which end of its "
+                    "interval a stamp marks)?")
+        if words & {"timestamp", "timestamps", "datetime", "date", "stamps"}:
+            return "; did you mean 'time_column' (the column, or columns, of the stamps)?"
     return None

@@ -18,7 +18,7 @@ from fluxpart import Config, process, scenarios
 from fluxpart.cli import main
 from fluxpart.config import setting_text
 from fluxpart.errors import ConfigError
-from fluxpart.key_hints import SLIP_LIKENESS, meaning_hint
+from fluxpart.key_hints import SLIP_LIKENESS, meaning_hint, table_meaning_hint
 
 EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
 
@@ -128,3 +128,42 @@ def test_the_command_line_refuses_in_one_line_naming_the_fixed_method(tmp_path, 
     assert len(lines) == 1 and 'ustar_method = "fixed"' in lines[0]
     assert "ustar_threshold" in lines[0] and "Traceback" not in err
     assert not out.exists()
+
+
+@pytest.mark.parametrize(("table", "old", "new", "meant", "before"), [
+    ("input", 'time_marks = "end"', 'timestamp_position = "end"', "'time_marks'", "'time_zone'"),
+    ("input", "missing = [-9999]", "na_values = [-9999]", "'missing'", "'interval_minutes'"),
+    ("input", 'time_column = "stamp_end"', 'timestamp = "stamp_end"', "'time_column'",
+     "'time_marks'"),
+    ("site", "utc_offset = 1.0", "timezone = 1.0", "'utc_offset'", "valid keys"),
+    ("site", 'canopy = "short"', 'vegetation = "short"', "'canopy'", "valid keys"),
+])
+def test_a_site_or_input_key_of_ones_own_words_names_the_key_meant(tmp_path, table, old,
+                                                                    new, meant, before):
+    """The example's config with one key renamed in the user's words: the refusal names
+    the key meant, not the nearest spelling (fails on f5d7226, which gave `before`)."""
+    from fluxpart.io import read_site_config
+
+    for name in ("quillmoor_grassland.toml", "quillmoor_grassland.csv"):
+        shutil.copy(EXAMPLES / name, tmp_path / name)
+    config = tmp_path / "quillmoor_grassland.toml"
+    text = config.read_text()
+    assert old in text
+    config.write_text(text.replace(old, new, 1))
+    with pytest.raises(ConfigError) as caught:
+        read_site_config(config)
+    message = str(caught.value)
+    assert message.startswith(f"[{table}] {new.split(' =')[0]} is unknown")
+    assert meant in message and before not in message
+
+
+@pytest.mark.parametrize(("key", "valid"), [("lattitude", "latitude"), ("lat", "latitude"),
+                                            ("timestamp_format", "time_format")])
+def test_a_site_or_input_slip_keeps_the_spelling_hint(key, valid):
+    """Slips and words of no rule are left to the spelling hint (None here)."""
+    from fluxpart.io import _INPUT_KEYS, _SITE_KEYS
+
+    table = "site" if valid == "latitude" else "input"
+    keys = _SITE_KEYS if table == "site" else _INPUT_KEYS
+    assert valid in keys
+    assert table_meaning_hint(key, table, keys) is None
