@@ -1599,6 +1599,15 @@ def _check_missing_by_variable(value, columns) -> dict:
         if name not in READER_VARIABLES or name == "nee_flag":
             raise ConfigError(f"[input.missing_by_variable] {name}: expected a canonical "
                               f"variable ({', '.join(v for v in READER_VARIABLES if v != 'nee_flag')})")
+        if name not in columns:
+            # a table of codes for a column the file does not map applies to nothing
+            # (review37: rg = [0] beside a radiation column mapped as ppfd was ignored)
+            other = {"rg": "ppfd", "ppfd": "rg"}.get(name)
+            hint = (f"; the radiation column is mapped as {other}: write {other} = "
+                    f"{setting_text(codes)}" if other in columns else "")
+            raise ConfigError(f"[input.missing_by_variable] {name}: no column is mapped to "
+                              f"{name} in [input.columns] (mapped: {', '.join(columns)}), so "
+                              f"its codes would apply to no column{hint}")
         if not isinstance(codes, (list, tuple)):
             codes = [codes]
         try:

@@ -1,0 +1,81 @@
+"""Review round review37: findings in this session's merges (layouts31's
+``[input.missing_by_variable]`` and its refusal message)."""
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.code_values import ordinary_code_message
+from fluxpart.errors import ConfigError
+from fluxpart.io import read_table
+from fluxpart.site import Site
+from fluxpart.variables import PPFD_PER_RG
+
+SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
+
+
+def _ppfd_file(path):
+    """Invented half-hourly records (30 days) whose radiation column is PPFD, written 0
+    on every record with the sun wholly down (a quantum sensor reads no photons in the
+    dark, a fact of the trade; a logger clamping negative offsets writes exactly 0)."""
+    ends = pd.date_range("2021-05-01 00:30", periods=48 * 30, freq="30min")
+    hour = (ends - pd.Timedelta(minutes=15)).hour + 0.25
+    day = np.clip(np.sin((hour - 5) / 15 * np.pi), 0, None)        # sun up 05-20 h
+    ppfd = np.round(1600 * day, 1)
+    rng = np.random.default_rng(37)
+    fc = np.round(2.0 - ppfd / 200 + rng.normal(0, 0.4, ends.size), 3)
+    ta = np.round(15 + 5 * np.sin((hour - 9) / 12 * np.pi), 2)
+    lines = ["stamp,fc,us,par,ta,vpd"] + [
+        f"{e:%Y-%m-%d %H:%M},{f:g},0.3,{p:g},{t:g},{5 + t / 3:.2f}"
+        for e, f, p, t in zip(ends, fc, ppfd, ta, strict=True)]
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    return path, ppfd
+
+
+def _read(path, **options):
+    settings = {"columns": {"nee": "fc", "ustar": "us", "ppfd": "par", "tair": "ta",
+                            "vpd": "vpd"},
+                "time_column": "stamp", "time_format": "%Y-%m-%d %H:%M", "time_marks": "end",
+                "units": {"vpd": "hPa"}, "site": SITE} | options
+    return read_table(path, **settings)
+
+
+def test_codes_for_a_variable_no_column_is_mapped_to_are_refused(tmp_path):
+    """Before: ``rg = [0]`` in [input.missing_by_variable] beside a radiation column
+    mapped as ppfd applied to no column, without a word (the night zeros the user meant
+    to blank stayed). Now refused naming the table, the variable and the mapped name;
+    ``ppfd = [0]`` blanks exactly the zeros (known truth of the invented file)."""
+    path, ppfd = _ppfd_file(tmp_path / "p.csv")
+    with pytest.raises(ConfigError) as caught:
+        _read(path, missing_by_variable={"rg": [0]})
+    message = str(caught.value)
+    assert message.startswith("[input.missing_by_variable] rg: no column is mapped to rg")
+    assert "mapped as ppfd: write ppfd = [0]" in message
+    with pytest.raises(ConfigError, match=r"missing_by_variable\] tsoil: no column"):
+        _read(path, missing_by_variable={"tsoil": [-99]})
+    frame, _ = _read(path, missing_by_variable={"ppfd": [0]})
+    assert int(frame["rg"].isna().sum()) == int((ppfd == 0).sum()) > 0
+    # the rest converted as PPFD / PPFD_PER_RG (the reader's stated conversion)
+    kept = ppfd != 0
+    assert np.allclose(frame["rg"].to_numpy()[kept], ppfd[kept] / PPFD_PER_RG)
+
+
+def test_a_refused_nee_column_is_not_offered_its_own_code_as_the_other_columns_fix():
+    """Before: an NEE column whose 0 is an ordinary value (values to 0.1 µmol m-2 s-1
+    near 0, 0.0 as frequent as ±0.1) was told "if 0 means no value only in other
+    columns, move it to [input.missing_by_variable] for those (e.g. nee = [0])", the
+    setting that blanks NEE's own readings. Now the example names another column.
+    Invented values: a continuous variable of smooth density rounded to 0.1 puts about
+    as many values on 0 as on ±0.1 (a fact of rounding), which the test checks."""
+    values = np.round(np.random.default_rng(3).normal(0.0, 0.5, 2000), 1)
+    zeros = int((values == 0).sum())
+    assert zeros >= 100 and zeros > 0.05 * values.size
+    assert 0.7 < zeros / (0.5 * int((np.abs(values) == 0.1).sum())) < 1.3
+    message = ordinary_code_message("nee", "fc", 0.0, values)
+    assert message is not None and "column 'fc' (nee)" in message
+    assert "(e.g. nee = [0])" not in message
+    assert "(e.g. rg = [0])" in message and "add nee = [0]" in message
+    # any other column keeps the NEE example
+    other = ordinary_code_message("tair", "ta", 0.0, values)
+    assert "(e.g. nee = [0])" in other and "add tair = [0]" in other
