@@ -79,3 +79,42 @@ def test_a_refused_nee_column_is_not_offered_its_own_code_as_the_other_columns_f
     # any other column keeps the NEE example
     other = ordinary_code_message("tair", "ta", 0.0, values)
     assert "(e.g. nee = [0])" in other and "add tair = [0]" in other
+
+
+# ------------------------------------------------ nee_limits on values of a coarse grid
+#: Molar mass of CO2 [g mol-1] (IUPAC standard atomic weights: C 12.011, O 15.999 (m)).
+_CO2_G_PER_MOL = 44.01
+
+
+def _as_mg_co2_to_two_decimals(nee):
+    """NEE [µmol m-2 s-1] written in mg CO2 m-2 s-1 to 0.01 and read back: steps of
+    0.01 / 0.04401 = 0.227 µmol m-2 s-1, which do not divide the 0.5 band."""
+    mg_per_umol = _CO2_G_PER_MOL * 1e-3
+    return np.round(np.asarray(nee) * mg_per_umol, 2) / mg_per_umol
+
+
+def test_values_on_a_grid_that_does_not_divide_the_band_are_not_named_as_cut():
+    """Before: a clean generated year (``scenarios.generate(22)``, invented) written in
+    mg CO2 m-2 s-1 to two decimals was named "ends abruptly in 2019-12 above 2.045
+    (52 values within 0.5 below it, 2 within 0.5 above)": the band inside held three
+    of the grid's levels and the band beyond two. Now bands of whole steps; a real cut
+    of the same values (below their 5th percentile removed, known truth) is still
+    named, and values of 0.001 keep the 0.5 and 2 µmol m-2 s-1 widths."""
+    from fluxpart import nee_limits, scenarios
+    from fluxpart.nee_limits import BAND, FAR, cut_nee
+
+    site_year = scenarios.generate(22)
+    nee = site_year.frame["nee"].to_numpy(dtype=float)
+    coarse = _as_mg_co2_to_two_decimals(nee)
+    steps = np.diff(np.unique(coarse[np.isfinite(coarse)]))
+    assert np.isclose(np.median(steps), 0.01 / (_CO2_G_PER_MOL * 1e-3), rtol=1e-6)
+    assert cut_nee(coarse, site_year.frame.index) is None
+    level = np.nanpercentile(coarse, 5)
+    cut = np.where(coarse < level, np.nan, coarse)
+    message = cut_nee(cut, site_year.frame.index)
+    assert message is not None and "ends abruptly" in message and "below" in message
+    widths = nee_limits._widths
+    assert widths(0.001) == (BAND, FAR, 0.0) and widths(0.05) == (BAND, FAR, 0.0)
+    band, far, offset = widths(0.01 / (_CO2_G_PER_MOL * 1e-3))
+    assert np.isclose(band, 2 * 0.227, atol=1e-3) and np.isclose(far, 8 * 0.227, atol=1e-2)
+    assert 0 < offset < band / 2
