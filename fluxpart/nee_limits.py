@@ -213,8 +213,9 @@ def cut_nee(nee, stamps=None, columns=None) -> str | None:
         the band next to it, and the band beyond it no more than :data:`BEYOND_SHARE`
         of them, or where, 5 µmol m-2 s-1 or more from 0, the band inside holds 25
         values or more and the :data:`FAR` beyond it no more than that share: values
-        beyond a limit removed. None otherwise, or where the values' resolution is
-        coarser than a quarter of a µmol m-2 s-1.
+        beyond a limit removed (on values coarser than a tenth of a band, bands of whole
+        steps of the values, :func:`_widths`). None otherwise, or where the values'
+        resolution is coarser than a quarter of a µmol m-2 s-1.
 
     Notes
     -----
