@@ -61,6 +61,34 @@ def test_codes_for_a_variable_no_column_is_mapped_to_are_refused(tmp_path):
     assert np.allclose(frame["rg"].to_numpy()[kept], ppfd[kept] / PPFD_PER_RG)
 
 
+def test_night_zeros_in_files_of_a_day_each_are_judged_over_all_the_files(tmp_path):
+    """Before: a logger writing one file a day (48 records) with PPFD 0 at night and
+    ``missing = [-9999, 0]``: each file's 18 night zeros were under the 48 cells judged,
+    so every night's radiation was blanked without a word, while the same records in one
+    file were refused. Now the files' cells are judged together (known truth: the zeros
+    are dark records of the invented file, a quantum sensor's reading in the dark)."""
+    path, ppfd = _ppfd_file(tmp_path / "whole.csv")
+    lines = path.read_text(encoding="utf-8").splitlines()
+    days = []
+    for day in range(30):
+        days.append(tmp_path / f"day{day:02d}.csv")
+        days[-1].write_text("\n".join([lines[0]] + lines[1 + 48 * day: 1 + 48 * (day + 1)])
+                            + "\n", encoding="utf-8")
+    zeros_a_day = int((ppfd[:48] == 0).sum())
+    assert 0 < zeros_a_day < 48 <= int((ppfd == 0).sum())
+    one, _ = _read(days[0], missing=[-9999, 0])            # a file alone: too few cells
+    assert int(one["rg"].isna().sum()) == zeros_a_day
+    with pytest.raises(ConfigError) as caught:
+        _read(days, missing=[-9999, 0])
+    message = str(caught.value)
+    assert "column 'par' (ppfd)" in message and "day00.csv and 29 more file(s)" in message
+    assert f"{int((ppfd == 0).sum())} of its {ppfd.size} values are 0" in message
+    with pytest.raises(ConfigError, match=r"column 'par' \(ppfd\)"):
+        _read(path, missing=[-9999, 0])                     # as the one file
+    kept, _ = _read(days, missing=[-9999], missing_by_variable={"nee": [0]})
+    assert not kept["rg"].isna().any()
+
+
 def test_a_refused_nee_column_is_not_offered_its_own_code_as_the_other_columns_fix():
     """Before: an NEE column whose 0 is an ordinary value (values to 0.1 µmol m-2 s-1
     near 0, 0.0 as frequent as ±0.1) was told "if 0 means no value only in other
