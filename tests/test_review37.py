@@ -15,11 +15,11 @@ from fluxpart.variables import PPFD_PER_RG
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
 
 
-def _ppfd_file(path):
+def _ppfd_file(path, days=30):
     """Invented half-hourly records (30 days) whose radiation column is PPFD, written 0
     on every record with the sun wholly down (a quantum sensor reads no photons in the
     dark, a fact of the trade; a logger clamping negative offsets writes exactly 0)."""
-    ends = pd.date_range("2021-05-01 00:30", periods=48 * 30, freq="30min")
+    ends = pd.date_range("2021-05-01 00:30", periods=48 * days, freq="30min")
     hour = (ends - pd.Timedelta(minutes=15)).hour + 0.25
     day = np.clip(np.sin((hour - 5) / 15 * np.pi), 0, None)        # sun up 05-20 h
     ppfd = np.round(1600 * day, 1)
@@ -87,6 +87,39 @@ def test_night_zeros_in_files_of_a_day_each_are_judged_over_all_the_files(tmp_pa
         _read(path, missing=[-9999, 0])                     # as the one file
     kept, _ = _read(days, missing=[-9999], missing_by_variable={"nee": [0]})
     assert not kept["rg"].isna().any()
+
+
+def test_the_zero_code_hint_of_nee_gives_the_code_of_nee_alone_first(tmp_path):
+    """Before: NEE written 0 where missing was told "add 0 to [input] missing" first,
+    which blanks 0 in every column, also where it is a reading the ordinary-code rule
+    does not judge: VPD at saturation (VPD = es - e is 0 at 100 % relative humidity, its
+    definition), a column's lower bound. Now ``nee = [0]`` in
+    [input.missing_by_variable] comes first and the global code names what it blanks;
+    the first fix keeps the VPD zeros (known truth of the invented file), the second
+    loses them."""
+    path, _ = _ppfd_file(tmp_path / "z.csv", days=60)
+    lines = path.read_text(encoding="utf-8").splitlines()
+    body = [line.split(",") for line in lines[1:]]
+    for number, fields in enumerate(body):
+        if number % 7 == 0:
+            fields[1] = "0"                      # NEE's gaps written 0
+        if number % 48 in (2, 3, 4):
+            fields[5] = "0.00"                   # a saturated night: VPD 0
+        if fields[3] == "0":
+            fields[3] = "0.3"                    # a quantum sensor's dark offset, not 0
+    path.write_text("\n".join([lines[0]] + [",".join(f) for f in body]) + "\n",
+                    encoding="utf-8")
+    with pytest.raises(Exception) as caught:
+        _read(path)
+    message = str(caught.value)
+    first, second = message.index("nee = [0]"), message.index("add 0 to [input] missing")
+    assert first < second and "VPD at saturation" in message[second:]
+    kept, _ = _read(path, missing_by_variable={"nee": [0]})
+    saturated = np.arange(len(body)) % 48
+    saturated = np.isin(saturated, (2, 3, 4)) & (np.arange(len(body)) % 7 != 0)
+    assert (kept["vpd"].to_numpy()[saturated] == 0).all()
+    blanked, _ = _read(path, missing=[-9999, 0])
+    assert blanked["vpd"].isna().to_numpy()[saturated].all()
 
 
 def test_a_refused_nee_column_is_not_offered_its_own_code_as_the_other_columns_fix():
