@@ -179,3 +179,29 @@ def test_values_on_a_grid_that_does_not_divide_the_band_are_not_named_as_cut():
     band, far, offset = widths(0.01 / (_CO2_G_PER_MOL * 1e-3))
     assert np.isclose(band, 2 * 0.227, atol=1e-3) and np.isclose(far, 8 * 0.227, atol=1e-2)
     assert 0 < offset < band / 2
+
+
+def test_the_methods_name_the_donor_rule_the_result_was_made_with():
+    """Before: the report's methods named no donor rule, so a result of
+    ``gapfill_donors = "dark_first"`` (dark donors first for night gaps in darkness, not
+    the default) read as one of the default. Now the gap-filling item says which records
+    filled a gap, citing Falge et al. (2001, Agric. For. Meteorol. 107:43-69: day and
+    night filled separately) or Reichstein et al. (2005, the single rule), and a config
+    without the setting is told nothing."""
+    from fluxpart import report
+
+    def gap_filling(config):
+        listed, cited = report._methods(config, False)
+        item = next(item for item in listed.split("<li>") if item.startswith("Gap filling"))
+        return item, cited
+
+    dark, cited = gap_filling({"gapfill_donors": "dark_first"})
+    assert "sun below the horizon took night records with the sun below" in dark
+    assert "Falge et al. 2001" in dark and "falge2001" in cited
+    default, cited = gap_filling({"gapfill_donors": "separate_day_night"})
+    assert "Night gaps of NEE took night records" in default
+    assert "sun below the horizon" not in default and "falge2001" in cited
+    single, cited = gap_filling({"gapfill_donors": "similar_conditions_only"})
+    assert "Any record within the tolerances" in single and "falge2001" not in cited
+    older, cited = gap_filling({})
+    assert "Night gaps of NEE" not in older and "Any record" not in older
