@@ -119,9 +119,12 @@ def ordinary_code_message(name: str, column: str, code: float, values, night=Non
         why = (f"about as often as the values {step:.3g} beside it ({beside} cells), as a "
                f"measured value is, among values from {others.min():g} to {others.max():g}")
     where = f" of {source!r}" if source else ""
+    # the example of "other columns" is another column than this one (review37: a refused
+    # NEE column was offered nee = [0], which blanks its own readings)
+    example = "rg" if name == "nee" else "nee"
     return (f"[input] missing lists {shown}, an ordinary value of column {column!r} ({name})"
             f"{where}: {cells} of its {count} values are {shown}, {why}; read as no value "
             f"they leave {name} missing there, read as measured they stay: if {shown} means "
             f"no value only in other columns, move it from [input] missing to "
-            f"[input.missing_by_variable] for those (e.g. nee = [{shown}]); if it means no "
+            f"[input.missing_by_variable] for those (e.g. {example} = [{shown}]); if it means no "
             f"value in {column!r} too, add {name} = [{shown}] to [input.missing_by_variable]")

@@ -849,6 +849,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                         f"in the flag column(s) {', '.join(repr(c) for c in flag_columns)}")
     parts, mapping = [], None
     empty = []
+    # several files: a missing code no file shows as a reading alone is judged on the
+    # cells of them all (review37: daily files of 48 records, each under MIN_CELLS)
+    code_cells = {} if len(paths) > 1 else None
     for path_ in paths:
         try:
             part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
@@ -859,7 +862,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               utc_offset=utc_offset, warnings=warnings,
                               may_lack=len(paths) > 1, flag_missing=flag_missing,
                               time_marks=time_marks, site=site,
-                              missing_by_variable=missing_by_variable)
+                              missing_by_variable=missing_by_variable,
+                              code_cells=code_cells)
         except _EmptyFileError as error:
             # one of several files without records (a logger file opened at a power cut):
             # it holds nothing to read, so the others are read and it is named
@@ -895,6 +899,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     if not parts:
         raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
                              f"{empty[0]!r}); check [input] path")
+    _refuse_ordinary_code_of_files(code_cells, parts)
     header_rows = _header_rows_warning(parts)
     if header_rows:
         warnings.append(header_rows)
@@ -1602,6 +1607,15 @@ def _check_missing_by_variable(value, columns) -> dict:
         if name not in READER_VARIABLES or name == "nee_flag":
             raise ConfigError(f"[input.missing_by_variable] {name}: expected a canonical "
                               f"variable ({', '.join(v for v in READER_VARIABLES if v != 'nee_flag')})")
+        if name not in columns:
+            # a table of codes for a column the file does not map applies to nothing
+            # (review37: rg = [0] beside a radiation column mapped as ppfd was ignored)
+            other = {"rg": "ppfd", "ppfd": "rg"}.get(name)
+            hint = (f"; the radiation column is mapped as {other}: write {other} = "
+                    f"{setting_text(codes)}" if other in columns else "")
+            raise ConfigError(f"[input.missing_by_variable] {name}: no column is mapped to "
+                              f"{name} in [input.columns] (mapped: {', '.join(columns)}), so "
+                              f"its codes would apply to no column{hint}")
         if not isinstance(codes, (list, tuple)):
             codes = [codes]
         try:
@@ -1613,7 +1627,8 @@ def _check_missing_by_variable(value, columns) -> dict:
 
 
 def _refuse_ordinary_code(text, column, name, codes, judged, decimal, source, lines,
-                          comma_file, stamps, time_marks, site, explicit=()) -> None:
+                          comma_file, stamps, time_marks, site, explicit=(),
+                          code_cells=None) -> None:
     """Refuse a numeric missing code of ``[input] missing`` that is an ordinary reading of
     this column (:func:`fluxpart.code_values.ordinary_code_message`). Run only where
     `missing` holds a code of magnitude below
@@ -1640,6 +1655,27 @@ def _refuse_ordinary_code(text, column, name, codes, judged, decimal, source, li
         night = np.asarray(potential) < NIGHT_POTENTIAL
     for code in judged:
         message = ordinary_code_message(name, column, code, written, night, source)
+        if message:
+            raise ConfigError(message)
+        if code_cells is not None:
+            code_cells.setdefault((name, column, code), []).append((written, night))
+
+
+def _refuse_ordinary_code_of_files(code_cells, parts) -> None:
+    """Refuse a missing code that is an ordinary reading of a column over all the files
+    read (`code_cells`: (name, column, code) -> the numbers as written and the night mask
+    of each file, from :func:`_refuse_ordinary_code`), where no file alone had the cells
+    to tell (:data:`~fluxpart.code_values.MIN_CELLS`): a logger writing a file a day
+    holds some 20 night readings of Rg in each. Nothing is judged for one file."""
+    if not code_cells:
+        return
+    sources = [part["source"] for part in parts]
+    shown = sources[0] + (f" and {len(sources) - 1} more file(s)" if len(sources) > 1 else "")
+    for (name, column, code), pieces in code_cells.items():
+        nights = [night for _, night in pieces]
+        night = None if any(n is None for n in nights) else np.concatenate(nights)
+        written = np.concatenate([np.asarray(values, dtype=float) for values, _ in pieces])
+        message = ordinary_code_message(name, column, code, written, night, shown)
         if message:
             raise ConfigError(message)
 
@@ -3001,7 +3037,8 @@ _ISO_WITHOUT_OFFSETS = "%Y-%m-%dT%H:%M:%S"
 def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_format, missing,
                delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
                utc_offset, warnings, may_lack=False, flag_missing=None,
-               time_marks=None, site=None, missing_by_variable=None) -> dict:
+               time_marks=None, site=None, missing_by_variable=None,
+               code_cells=None) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column.
 
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
@@ -3081,7 +3118,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         if judged and name not in flag_keys:
             _refuse_ordinary_code(raw[column], column, name, codes, judged, decimal, source,
                                   lines, comma_file, parsed.stamps, time_marks, site,
-                                  missing_by_variable.get(name, ()))
+                                  missing_by_variable.get(name, ()), code_cells)
         values[name], missing_cells[name], nonfinite[name] = numbers, n_missing, int(absurd.sum())
         if absurd.any():
             warnings.append(f"column {column!r} ({name.split(':')[0]}): {int(absurd.sum())} "

@@ -121,6 +121,8 @@ _REFERENCES = {
     "richardson2007": "Richardson, A. D. & Hollinger, D. Y. (2007). A method to estimate the "
                       "additional uncertainty in gap-filled NEE resulting from long gaps. "
                       "Agricultural and Forest Meteorology 147:199–208.",
+    "falge2001": "Falge, E. et al. (2001). Gap filling strategies for defensible annual sums "
+                 "of net ecosystem exchange. Agricultural and Forest Meteorology 107:43–69.",
     "okabe2008": "Okabe, M. & Ito, K. (2008). Color Universal Design (CUD): how to make figures "
                  "and presentations that are friendly to colorblind people (colour palette of "
                  "the figures).",
@@ -688,6 +690,25 @@ def _fill_estimate(config: dict, soil: bool = False) -> str:
     return "Each fill is the mean of the similar records."
 
 
+def _fill_donors(config: dict) -> str:
+    """Which records filled an NEE gap, as the result's config says (review37: the methods
+    named no donor rule, and a result of ``gapfill_donors = "dark_first"`` read as one of
+    the default); nothing for a config without the setting."""
+    donors = config.get("gapfill_donors")
+    if donors == "similar_conditions_only":
+        return (" Any record within the tolerances filled an NEE gap, day or night (the "
+                "single rule of Reichstein et al. 2005).")
+    if donors not in ("separate_day_night", "dark_first"):
+        return ""
+    text = (" Night gaps of NEE took night records and day gaps day records (Falge et al. "
+            "2001), a day gap's mean diurnal course records of both")
+    if donors == "dark_first":
+        text += ("; a night gap with the sun below the horizon took night records with the "
+                 "sun below the horizon first, in the passes of quality A and B "
+                 "(gapfill_donors = \"dark_first\", not the default)")
+    return text + "."
+
+
 def _soil_regressor(written: Written) -> bool:
     """Whether the result's night NEE fills regressed on soil temperature: it has a
     ``tsoil`` column and was written by fluxpart 0.22.0 or later (the manifest's version)."""
@@ -785,6 +806,8 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
     respiration, respiration_cited = _respiration_methods(config)
     cited += respiration_cited
     cited.append("richardson2007")
+    if config.get("gapfill_donors") in ("separate_day_night", "dark_first"):
+        cited.append("falge2001")
     items = [
         "Solar geometry and potential radiation from local standard time and longitude "
         f"(solar constant {SOLAR_CONSTANT:g} W m-2, Kopp & Lean 2011); night where Rg is below "
@@ -799,7 +822,7 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
         "Gap filling of NEE and the drivers by marginal distribution sampling (Reichstein et "
         "al. 2005, appendix): similar Rg, Tair and VPD within widening time windows, then the "
         f"mean diurnal course; fill quality classes A, B, C. {_fill_estimate(config, soil)}"
-        f"{_fill_events(config, windows_cut)}",
+        f"{_fill_donors(config)}{_fill_events(config, windows_cut)}",
         "Nighttime partitioning: Lloyd–Taylor respiration (Lloyd & Taylor 1994); E0 per year "
         f"from the night data with a free Rref in each {_setting_value(config.get('e0_window_days'))}"
         f"-day window (e0_method = {_setting_value(config.get('e0_method'))}), Rref in "

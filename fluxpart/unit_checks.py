@@ -449,12 +449,17 @@ def _zero_code_message(converted: dict, columns: dict, interval_minutes: int, mi
              f"exactly 0, against {beside} at ±{step:.3g}, the file's resolution, beside it; "
              "a flux is not exactly 0 that often")
     if _enough_days(present.size, interval_minutes):
+        # the code of one column is given for that column first (review37): in [input]
+        # missing 0 blanks every column, and where 0 is a reading at a column's bound (VPD
+        # at saturation, 0-10 % of generated records) nothing names it
         return (f"column {columns['nee']!r} (nee): {found}: 0 looks like the logger's code "
-                "for a missing value: add 0 to [input] missing, or nee = [0] to "
-                "[input.missing_by_variable] where 0 is a reading in other columns (Rg at "
-                "night) (or list nee in [input] accept_units to keep the zeros as "
-                "measured)"), None
-    return None, f"nee: {found}; if 0 marks missing values, add 0 to [input] missing"
+                "for a missing value: add nee = [0] to [input.missing_by_variable] (0 is "
+                "then no value in NEE only), or add 0 to [input] missing where 0 means no "
+                "value in every column (there it also blanks readings of 0: Rg at night, "
+                "VPD at saturation) (or list nee in [input] accept_units to keep the zeros "
+                "as measured)"), None
+    return None, (f"nee: {found}; if 0 marks missing values, add nee = [0] to "
+                  "[input.missing_by_variable]")
 
 
 def _nonzero_code_message(converted: dict, units: dict, columns: dict,
