@@ -1,0 +1,115 @@
+"""Layouts of the layouts32 round.
+
+Outside facts, each named beside its check: VPD is the saturation vapour pressure less the
+actual one, so it is never below 0 and is 0 where the air is saturated (RH 100 %; any
+textbook of micrometeorology, e.g. Campbell & Norman 1998, ch. 3 (m)); the saturation
+vapour pressure over water after Tetens (1930) as given by Murray (1967),
+0.61078 exp(17.27 T / (T + 237.3)) kPa (m). Everything else is invented known truth: the
+records as written.
+"""
+
+import math
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.code_values import BOUND_NEAR, ordinary_code_message
+from fluxpart.errors import ConfigError
+from fluxpart.io import read_table
+from fluxpart.site import Site
+
+SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
+MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd", "rh": "rh"}
+NAMES = ["fc", "us", "sw", "ta", "vpd", "rh"]
+
+
+def _saturation_kpa(t_c):
+    """Tetens (1930) after Murray (1967) (m) [kPa]."""
+    return 0.61078 * np.exp(17.27 * t_c / (t_c + 237.3))
+
+
+def _humid_records(count=48 * 120, seed=32):
+    """Invented half-hourly records: RH swinging with the day and a slow weather cycle,
+    clamped at 100 % (a humidity sensor's output limit), VPD computed from it as a logger
+    program does, so exactly 0 at every saturated record."""
+    ends = pd.date_range("2021-09-01 00:30", periods=count, freq="30min")
+    hour = ends.hour + ends.minute / 60
+    rng = np.random.default_rng(seed)
+    ta = (12 + 6 * np.sin((hour - 9) / 12 * np.pi) + rng.normal(0, 0.2, count)).round(2)
+    weather = 8 * np.sin(np.arange(count) / 48 / 3.0)
+    rh = np.clip(79 - 14 * np.sin((hour - 9) / 12 * np.pi) + weather
+                 + rng.normal(0, 1.0, count), 20, 100).round(1)
+    vpd = (_saturation_kpa(ta) * (1 - rh / 100)).round(4)
+    fc = (2.0 + rng.normal(0, 0.5, count)).round(3)
+    us = (0.25 + 0.1 * np.cos(np.arange(count) / 7)).round(3)
+    sw = np.clip(600 * np.sin((hour - 6) / 12 * np.pi), 0, None).round(1) + 1.3
+    return ends, np.column_stack([fc, us, sw, ta, vpd, rh])
+
+
+def _write(path, ends, values):
+    lines = ["stamp," + ",".join(NAMES)]
+    lines += [f"{e:%Y-%m-%d %H:%M}," + ",".join(f"{v:g}" for v in row)
+              for e, row in zip(ends, values, strict=True)]
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    return path
+
+
+def _read(path, **options):
+    settings = {"columns": MAPPING, "time_column": "stamp", "time_format": "%Y-%m-%d %H:%M",
+                "time_marks": "end", "units": {"vpd": "kPa"}, "site": SITE} | options
+    return read_table(path, **settings)
+
+
+# ------------------------------------------ VPD written 0 at saturation under a 0 code
+def test_vpd_zero_at_saturation_under_a_code_of_zero_is_refused_naming_both(tmp_path):
+    """Before: missing = [-9999, 0] blanked every saturated record's VPD without a word
+    (the invented grassland example's 362 zeros, 2.1 % of its VPD: annual NEE -241.67 ->
+    -240.42, daytime Reco -2.8 g C m-2). VPD is 0 exactly where RH is 100 % (m)."""
+    ends, values = _humid_records()
+    zeros = values[:, 4] == 0
+    assert np.array_equal(zeros, values[:, 5] == 100)       # VPD 0 <=> saturated (m)
+    assert 0.01 < zeros.mean() < 0.05                        # below layouts31's 5 % gate
+    path = _write(tmp_path / "v.csv", ends, values)
+    with pytest.raises(ConfigError) as caught:
+        _read(path, missing=[-9999, 0])
+    message = str(caught.value)
+    assert "column 'vpd' (vpd)" in message and "at the bound of its values" in message
+    assert "vpd = [0]" in message and "[input.missing_by_variable]" in message
+    # the reading "0 is a code of NEE only": VPD kept whole, as without the code
+    kept, _ = _read(path, missing=[-9999], missing_by_variable={"nee": [0]})
+    plain, _ = _read(path)
+    assert np.array_equal(kept["vpd"].to_numpy(), plain["vpd"].to_numpy())
+    assert int((plain["vpd"] == 0).sum()) == int(zeros.sum())
+    # the reading "0 is no value in VPD too": the zeros blanked, as asked
+    blanked, _ = _read(path, missing=[-9999, 0], missing_by_variable={"vpd": [0]})
+    assert int(blanked["vpd"].isna().sum()) == int(zeros.sum())
+
+
+def test_a_code_of_zero_at_random_records_of_vpd_stays_a_code():
+    """An outage written 0 falls at any humidity: the records beside it lie as far from 0
+    as the column does, so 0 is blanked as a code, as before."""
+    ends, values = _humid_records()
+    vpd = values[:, 4].copy()
+    vpd[vpd == 0] = 0.0005                                  # no saturation in this one
+    outage = np.random.default_rng(3).random(vpd.size) < 0.04
+    vpd[outage] = 0.0
+    assert ordinary_code_message("vpd", "vpd", 0.0, vpd) is None
+
+
+def test_the_bound_rule_on_its_own():
+    """The neighbour distance against the column's: a slow quantity reaching its bound is
+    a reading (a sine's records beside its zero lie within one step of it), a code beyond
+    a column far from it is not; fewer than 1 % of cells are not judged."""
+    t = np.arange(4800)
+    slow = np.clip(np.sin(t / 96 * 2 * math.pi) * 2.0, 0, None).round(3)   # kPa
+    assert 0.3 < (slow == 0).mean() < 0.6
+    near = 2.0 * math.sin(2 * math.pi / 96)                  # one record from the zero
+    assert near < BOUND_NEAR * np.median(slow[slow > 0])
+    assert "at the bound of its values" in ordinary_code_message("vpd", "v", 0.0, slow)
+    far = np.where(t % 50 == 0, 0.0, 5.0 + np.sin(t / 7)).round(2)   # 2 % zeros, far
+    assert ordinary_code_message("vpd", "v", 0.0, far) is None
+    rare = slow.copy()
+    rare[rare == 0] = 0.001
+    rare[:40] = 0.0                                          # under 1 % and 48 cells
+    assert ordinary_code_message("vpd", "v", 0.0, rare) is None
