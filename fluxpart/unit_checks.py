@@ -37,6 +37,7 @@ from .nee_smoothing import (
     running_mean_length,
 )
 from .variables import (
+    LANGLEY_PER_MINUTE,
     PER_INTERVAL_UNITS,
     PPFD_PER_RG,
     READER_VARIABLES,
@@ -225,6 +226,9 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
     rest = present[raw_present != code]
     if count >= 3 and (rest.size == 0 or _outside(name, rest).mean() <= IMPLAUSIBLE_SHARE):
         return message + missing_code_hint(code, count, missing)
+    tenths = _tenths_hint(name, raw_present, unit)
+    if tenths:
+        return message + tenths
     better = _better_units(name, raw_present, unit, interval_minutes)
     if better:
         return message + (f"; the values look like {better[0]!r}: set [input.units] {name} = "
@@ -232,6 +236,34 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
     return message + ("; check the column mapping and [input.units]; if these are "
                       "instrument faults, mark them with a missing code (or the site flag) "
                       f"in a copy of the file, or list {name} in [input] accept_units")
+
+
+#: Units of tenths of a degree (:data:`fluxpart.variables`), named only for whole numbers
+TENTHS_UNITS = ("0.1 °C", "0.1 degC")
+
+
+def _whole_tenths(name: str, raw_present: np.ndarray, unit) -> bool:
+    """Whether a temperature read as °C is written as whole numbers that, read as
+    tenths of a degree, are plausible: every value a whole number, none outside the
+    plausible range once divided by 10, and some beyond 6 in magnitude (a tenth of 0.6
+    °C is no reading told apart; our choice)."""
+    if name not in ("tair", "tsoil") or not reads_as_canonical(name, unit):
+        return False
+    values = raw_present[np.isfinite(raw_present)]
+    if values.size < _IMPLAUSIBLE_MIN_COUNT or not np.all(values == np.round(values)):
+        return False
+    return (not _outside(name, values / 10.0).any()
+            and float(np.percentile(np.abs(values), 90)) > 6.0)
+
+
+def _tenths_hint(name: str, raw_present: np.ndarray, unit) -> str:
+    """The refusal's fix for a temperature in tenths of a degree written as whole numbers
+    (a logger's integer storage), or ''."""
+    if not _whole_tenths(name, raw_present, unit):
+        return ""
+    return ("; every value is a whole number and, read as tenths of a degree, all are "
+            "plausible (a logger storing integers, 153 for 15.3 °C): set [input.units] "
+            f"{name} = \"0.1 °C\" (or list {name} in [input] accept_units)")
 
 
 def _rh_fraction(rh: np.ndarray) -> bool:
@@ -247,6 +279,8 @@ def _better_units(name: str, raw_present: np.ndarray, declared,
     declared_probe = to_canonical(probe, name, declared, interval_minutes=interval_minutes)
     candidates, seen = [], []
     for unit in units_for(name):
+        if unit in TENTHS_UNITS:
+            continue                # named by _tenths_hint, from whole numbers only
         converted_probe = to_canonical(probe, name, unit, interval_minutes=interval_minutes)
         if np.allclose(converted_probe, declared_probe) or any(
                 np.allclose(converted_probe, other) for other in seen):
@@ -837,10 +871,18 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
         warmest = float(np.nanmax(np.nanmedian(grid[enough], axis=1)))
     if not _WARMEST_MONTH < warmest <= _WARMEST_MONTH * 9.0 / 5.0 + 32.0:
         return None     # a plausible °C record, or beyond °F too (kelvin: the range check)
-    return (f"column {columns['tair']!r} (tair, read as °C): its warmest 30 days have a median "
-            f"of {warmest:.1f} °C, warmer than any month anywhere (about 42.5 °C at most); the "
-            f"values look like °F ({(warmest - 32.0) * 5.0 / 9.0:.1f} °C): set [input.units] "
-            "tair = \"°F\" (or list tair in [input] accept_units)")
+    found = (f"column {columns['tair']!r} (tair, read as °C): its warmest 30 days have a "
+             f"median of {warmest:.1f} °C, warmer than any month anywhere (about 42.5 °C at "
+             "most); the values look like °F "
+             f"({(warmest - 32.0) * 5.0 / 9.0:.1f} °C)")
+    if _whole_tenths("tair", np.asarray(tair, dtype=float), units.get("tair")):
+        # whole numbers: whole °F (old stations) and tenths of a degree (a logger's integer
+        # storage) both read them plausibly, and they differ by far (round layouts32)
+        return (f"{found} or like tenths of a degree written as whole numbers (a logger "
+                f"storing integers: {warmest / 10.0:.1f} °C): set [input.units] tair = \"°F\" "
+                "or tair = \"0.1 °C\", as the logger's program says (or list tair in "
+                "[input] accept_units)")
+    return f"{found}: set [input.units] tair = \"°F\" (or list tair in [input] accept_units)"
 
 
 def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes: int):
@@ -987,15 +1029,22 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
     ratio_kw = float(np.percentile(values * 1000.0 / np.asarray(potential)[bright], 90))
     per_interval = 1e6 / (interval_minutes * 60.0)
     ratio_mj = ratio_kw * per_interval / 1000.0
+    # an old actinograph's calories per cm2 and minute (round layouts32): 697 W m-2 each
+    ratio_cal = ratio_kw * LANGLEY_PER_MINUTE / 1000.0
     # clear-sky global radiation is about 0.75 of the potential (common practice)
     candidates = sorted([(abs(math.log(ratio_kw / 0.75)), "kW m-2"),
-                         (abs(math.log(ratio_mj / 0.75)), "MJ m-2")])
-    best, other = candidates[0][1], candidates[1][1]
+                         (abs(math.log(ratio_mj / 0.75)), "MJ m-2"),
+                         (abs(math.log(ratio_cal / 0.75)), "cal cm-2 min-1")])
+    best, others = candidates[0][1], [unit for _, unit in candidates[1:]]
+    # the three scales lie within a factor 1.8 at 30-minute records (1000, 697, 556 W
+    # m-2 per unit): cloud moves the ratio as much, so the others are named as readings
     return (f"column {columns['rg']!r} (rg, read as W m-2): with the sun well up, 90 % of "
             f"values are below {np.percentile(values, 90):.3g}, a thousandth of what a "
             f"pyranometer in W m-2 shows; the values look like {best!r}"
             + (" per interval" if best == "MJ m-2" else "")
-            + f": set [input.units] rg = \"{best}\" (or \"{other}\"; or list rg in [input] "
+            + f": set [input.units] rg = \"{best}\" (or \"{others[0]}\" or "
+            f"\"{others[1]}\", which the values fit less well and which give "
+            "other budgets: the logger's manual says which; or list rg in [input] "
             "accept_units)")
 
 

@@ -15,7 +15,7 @@ import pandas as pd
 import pytest
 
 from fluxpart.code_values import BOUND_NEAR, ordinary_code_message
-from fluxpart.errors import ConfigError
+from fluxpart.errors import ConfigError, ImplausibleValueError, InputFileError
 from fluxpart.io import read_table
 from fluxpart.site import Site
 
@@ -113,3 +113,111 @@ def test_the_bound_rule_on_its_own():
     rare[rare == 0] = 0.001
     rare[:40] = 0.0                                          # under 1 % and 48 cells
     assert ordinary_code_message("vpd", "v", 0.0, rare) is None
+
+
+# ------------------------------------------------ Rg in calories per cm2 and minute
+def _sunny_records(count=48 * 30):
+    """Invented half-hourly records of June, Rg 0.7 of the potential radiation (clear
+    days pass about 0.75 of it, common practice)."""
+    from fluxpart.solar import potential_radiation
+    ends = pd.date_range("2021-06-01 00:30", periods=count, freq="30min")
+    hour = ends.hour + ends.minute / 60
+    rg = 0.7 * potential_radiation(ends - pd.Timedelta(minutes=30), SITE.latitude,
+                                   SITE.longitude, SITE.utc_offset, interval_minutes=30)
+    rng = np.random.default_rng(7)
+    ta = (16 + 6 * np.sin((hour - 9) / 12 * np.pi)).round(2)
+    rh = np.clip(70 - 20 * np.sin((hour - 9) / 12 * np.pi), 20, 99).round(1)
+    vpd = (_saturation_kpa(ta) * (1 - rh / 100)).round(4)
+    fc = (3.0 - rg / 80 + rng.normal(0, 0.5, count)).round(3)
+    us = (0.3 + 0.1 * np.cos(np.arange(count) / 7)).round(3)
+    return ends, np.column_stack([fc, us, rg, ta, vpd, rh])
+
+
+def test_a_langley_per_minute_is_697_watts():
+    """1 ly = 1 thermochemical cal cm-2 = 41,840 J m-2 (NIST SP 811, appendix B (m)), so
+    1 ly min-1 = 697.33 W m-2; the solar constant, 1361 W m-2 (Kopp & Lean 2011 (m)),
+    is the 1.95 ly min-1 of old actinometry (m)."""
+    from fluxpart.variables import to_canonical
+    assert float(to_canonical(np.array([1.0]), "rg", "cal cm-2 min-1")[0]) == pytest.approx(
+        41840 / 60, rel=1e-12)
+    assert float(to_canonical(np.array([1.0]), "rg", "ly min-1")[0]) == pytest.approx(697.33,
+                                                                                       abs=0.01)
+    assert 1361 / (41840 / 60) == pytest.approx(1.95, abs=0.01)
+
+
+def test_rg_in_calories_is_named_and_read_declared(tmp_path):
+    """Before: Rg of an old actinograph in cal cm-2 min-1 was refused as "MJ m-2" per
+    interval, a fix that read it 20 % low (556 for 697 W m-2 a unit) and ran without a
+    word (the invented grassland: nighttime GPP -2.8, daytime Reco -3.7 g C m-2); the
+    unit was unknown. Known truth: the W m-2 the file was made from."""
+    ends, values = _sunny_records()
+    watts = values[:, 2].copy()
+    values[:, 2] = (watts / (41840 / 60)).round(4)
+    path = _write(tmp_path / "c.csv", ends, values)
+    with pytest.raises(ImplausibleValueError) as caught:
+        _read(path, missing=[-9999])
+    message = str(caught.value)
+    assert "look like 'cal cm-2 min-1'" in message
+    assert '"MJ m-2"' in message and '"kW m-2"' in message
+    frame, _ = _read(path, missing=[-9999], units={"vpd": "kPa", "rg": "cal cm-2 min-1"})
+    assert np.allclose(frame["rg"].to_numpy(), watts, atol=0.5 * 1e-4 * 41840 / 60 + 1e-9)
+
+
+# ------------------------------------------ temperatures in tenths of a degree, integers
+def test_tair_in_tenths_of_a_degree_is_named_and_read_declared(tmp_path):
+    """Before: air temperature stored by the logger as integer tenths (153 for 15.3 °C)
+    was refused as out of range with "check the column mapping", no unit to declare.
+    Known truth: the °C the integers were made from."""
+    ends, values = _sunny_records()
+    celsius = values[:, 3].round(1)
+    values[:, 3] = np.round(celsius * 10)
+    path = _write(tmp_path / "t.csv", ends, values)
+    with pytest.raises(ImplausibleValueError) as caught:
+        _read(path, missing=[-9999])
+    message = str(caught.value)
+    assert "column 'ta' (tair" in message and 'tair = "0.1 °C"' in message
+    frame, _ = _read(path, missing=[-9999], units={"vpd": "kPa", "tair": "0.1 °C"})
+    assert np.allclose(frame["tair"].to_numpy(), celsius, atol=1e-9)
+
+
+def test_whole_numbers_that_read_as_fahrenheit_or_tenths_name_both():
+    """A cool site's air temperature written as whole numbers (summer near 18 °C, 64 °F
+    (NIST SP 811: °F = 1.8 °C + 32 (m)); 180 in tenths): both a whole-°F record and a
+    logger's integer tenths give such numbers, far apart; the refusal names both."""
+    from fluxpart.unit_checks import _tair_message
+    days = 60
+    t = np.arange(48 * days)
+    celsius = 14 + 4 * np.sin(t / 48 * 2 * math.pi)
+    fahrenheit = np.round(1.8 * celsius + 32)               # 50-65, plausible as °C
+    message = _tair_message({"tair": fahrenheit}, {}, {"tair": "ta"}, 30)
+    assert 'tair = "°F"' in message and 'tair = "0.1 °C"' in message
+    # with decimals the numbers are no integer tenths: °F alone, as before
+    message = _tair_message({"tair": 1.8 * celsius + 32}, {}, {"tair": "ta"}, 30)
+    assert 'tair = "°F"' in message and "0.1 °C" not in message
+
+
+# ------------------------------------------ a tab file whose header has blanks for tabs
+def test_a_tab_header_with_blanks_for_tabs_is_named(tmp_path):
+    """Before: a tab-delimited file whose header line an editor wrote with runs of blanks
+    for its tabs was "line 2 has 7 fields where the header has 1 ... is a column name
+    missing?"; now the blanks are named, with the fixes. Known truth: the header's names
+    and the data's fields as written; the "whitespace" fix reads the records as the
+    tab header does (the tab character, U+0009, common practice)."""
+    ends, values = _sunny_records(96)
+    header = "    ".join(["stamp"] + NAMES)
+    rows = [f"{e:%Y-%m-%dT%H:%M}\t" + "\t".join(f"{v:g}" for v in row)
+            for e, row in zip(ends, values, strict=True)]
+    path = tmp_path / "t.dat"
+    path.write_text("\n".join([header] + rows) + "\n", encoding="utf-8")
+    settings = {"time_format": "%Y-%m-%dT%H:%M", "missing": [-9999]}
+    with pytest.raises(InputFileError) as caught:
+        _read(path, delimiter="\t", **settings)
+    message = str(caught.value)
+    assert "separates its 7 names by runs of blanks" in message and "by tabs" in message
+    assert 'delimiter = "whitespace"' in message
+    blank, _ = _read(path, delimiter="whitespace", **settings)
+    tabbed = tmp_path / "u.dat"
+    tabbed.write_text("\n".join([header.replace("    ", "\t")] + rows) + "\n",
+                      encoding="utf-8")
+    tab, _ = _read(tabbed, delimiter="\t", **settings)
+    pd.testing.assert_frame_equal(blank, tab)
