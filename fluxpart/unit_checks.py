@@ -238,32 +238,47 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
                       f"in a copy of the file, or list {name} in [input] accept_units")
 
 
-#: Units of tenths of a degree (:data:`fluxpart.variables`), named only for whole numbers
-TENTHS_UNITS = ("0.1 °C", "0.1 degC")
+#: Units of whole numbers counting a fraction of the canonical unit (a logger's integer
+#: storage, :data:`fluxpart.variables`): variable -> (divisor, unit) in the order tried;
+#: named only for whole numbers (round layouts32)
+SCALED_UNITS = {"tair": ((10, "0.1 °C"), (100, "0.01 °C")),
+                "tsoil": ((10, "0.1 °C"), (100, "0.01 °C")),
+                "rh": ((10, "0.1 %"),)}
+_SCALED_SPELLINGS = frozenset({"0.1 °C", "0.1 degC", "0.01 °C", "0.01 degC", "0.1 %"})
 
 
-def _whole_tenths(name: str, raw_present: np.ndarray, unit) -> bool:
-    """Whether a temperature read as °C is written as whole numbers that, read as
-    tenths of a degree, are plausible: every value a whole number, none outside the
-    plausible range once divided by 10, and some beyond 6 in magnitude (a tenth of 0.6
-    °C is no reading told apart; our choice)."""
-    if name not in ("tair", "tsoil") or not reads_as_canonical(name, unit):
-        return False
+def _whole_scaled(name: str, raw_present: np.ndarray, unit) -> str | None:
+    """The unit of a fraction of a degree (or percent) under which a column read in the
+    canonical unit and written as whole numbers is plausible, or None.
+
+    Every value must be a whole number, none outside the plausible range once divided,
+    and the divided values' 90th percentile of magnitude within the variable's typical
+    range (:data:`_TYPICAL_P90`): tenths of a degree divided by 100 stay within the range
+    but hover near 0 °C all year, which no site's temperature does.
+    """
+    if name not in SCALED_UNITS or not reads_as_canonical(name, unit):
+        return None
     values = raw_present[np.isfinite(raw_present)]
     if values.size < _IMPLAUSIBLE_MIN_COUNT or not np.all(values == np.round(values)):
-        return False
-    return (not _outside(name, values / 10.0).any()
-            and float(np.percentile(np.abs(values), 90)) > 6.0)
+        return None
+    low, high = _TYPICAL_P90[name]
+    for divisor, scaled in SCALED_UNITS[name]:
+        divided = values / divisor
+        if (not _outside(name, divided).any()
+                and low <= float(np.percentile(np.abs(divided), 90)) <= high):
+            return scaled
+    return None
 
 
 def _tenths_hint(name: str, raw_present: np.ndarray, unit) -> str:
-    """The refusal's fix for a temperature in tenths of a degree written as whole numbers
-    (a logger's integer storage), or ''."""
-    if not _whole_tenths(name, raw_present, unit):
+    """The refusal's fix for a temperature or RH written as whole numbers of a tenth or
+    hundredth of its unit (a logger's integer storage), or ''."""
+    scaled = _whole_scaled(name, raw_present, unit)
+    if scaled is None:
         return ""
-    return ("; every value is a whole number and, read as tenths of a degree, all are "
-            "plausible (a logger storing integers, 153 for 15.3 °C): set [input.units] "
-            f"{name} = \"0.1 °C\" (or list {name} in [input] accept_units)")
+    return (f"; every value is a whole number and, read as {scaled!r}, all are plausible "
+            f"(a logger storing integers, 153 for 15.3): set [input.units] {name} = "
+            f"\"{scaled}\" (or list {name} in [input] accept_units)")
 
 
 def _rh_fraction(rh: np.ndarray) -> bool:
@@ -279,7 +294,7 @@ def _better_units(name: str, raw_present: np.ndarray, declared,
     declared_probe = to_canonical(probe, name, declared, interval_minutes=interval_minutes)
     candidates, seen = [], []
     for unit in units_for(name):
-        if unit in TENTHS_UNITS:
+        if unit in _SCALED_SPELLINGS:
             continue                # named by _tenths_hint, from whole numbers only
         converted_probe = to_canonical(probe, name, unit, interval_minutes=interval_minutes)
         if np.allclose(converted_probe, declared_probe) or any(
@@ -875,7 +890,7 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
              f"median of {warmest:.1f} °C, warmer than any month anywhere (about 42.5 °C at "
              "most); the values look like °F "
              f"({(warmest - 32.0) * 5.0 / 9.0:.1f} °C)")
-    if _whole_tenths("tair", np.asarray(tair, dtype=float), units.get("tair")):
+    if _whole_scaled("tair", np.asarray(tair, dtype=float), units.get("tair")) == "0.1 °C":
         # whole numbers: whole °F (old stations) and tenths of a degree (a logger's integer
         # storage) both read them plausibly, and they differ by far (round layouts32)
         return (f"{found} or like tenths of a degree written as whole numbers (a logger "

@@ -128,7 +128,8 @@ _TEMPERATURE = {"°C": (1.0, 0.0), "degC": (1.0, 0.0), "C": (1.0, 0.0),
                 "°F": (5.0 / 9.0, -32.0 * 5.0 / 9.0), "degF": (5.0 / 9.0, -32.0 * 5.0 / 9.0),
                 # tenths of a degree written as whole numbers (a logger storing integers,
                 # 153 for 15.3 °C; round layouts32)
-                "0.1 °C": (0.1, 0.0), "0.1 degC": (0.1, 0.0)}
+                "0.1 °C": (0.1, 0.0), "0.1 degC": (0.1, 0.0),
+                "0.01 °C": (0.01, 0.0), "0.01 degC": (0.01, 0.0)}
 _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
     "nee": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),
             "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0),
@@ -144,12 +145,18 @@ _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
     "tsoil": _TEMPERATURE,
     "vpd": {"hPa": (1.0, 0.0), "mbar": (1.0, 0.0), "kPa": (10.0, 0.0), "Pa": (0.01, 0.0)},
     "ustar": {"m s-1": (1.0, 0.0), "m/s": (1.0, 0.0)},
-    "rh": {"%": (1.0, 0.0), "fraction": (100.0, 0.0), "1": (100.0, 0.0)},
+    "rh": {"%": (1.0, 0.0), "fraction": (100.0, 0.0), "1": (100.0, 0.0),
+           "0.1 %": (0.1, 0.0)},          # tenths of a percent as whole numbers (layouts32)
     "nee_flag": {"1": (1.0, 0.0)},
     "storage": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),
                 "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0)},
     "ppfd": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0)},
 }
+
+#: Units of whole numbers counting a tenth or hundredth of the canonical unit (a logger's
+#: integer storage; round layouts32) -> the divisor applied
+DIVIDED_UNITS = {"0.1 °C": 10.0, "0.1 degC": 10.0, "0.01 °C": 100.0, "0.01 degC": 100.0,
+                 "0.1 %": 10.0}
 
 #: Units of an amount per record interval rather than a rate: (variable, unit) whose
 #: scale is divided by the interval in seconds (``"MJ m-2"`` of Rg = energy received
@@ -333,6 +340,11 @@ def to_canonical(values, name: str, unit: str | None = None, *,
                             "interval; the record interval is needed to convert it")
         scale = scale / (float(interval_minutes) * 60.0)
     with np.errstate(over="ignore", invalid="ignore"):
+        if unit in DIVIDED_UNITS:
+            # whole numbers of tenths or hundredths divided, not multiplied by 0.1: 153 /
+            # 10 is the double nearest 15.3, as the text "15.3" reads (IEEE 754 division
+            # is correctly rounded), where 153 * 0.1 may be one unit in the last place off
+            return values / DIVIDED_UNITS[unit]
         return values * scale + offset
 
 

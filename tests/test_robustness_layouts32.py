@@ -221,3 +221,25 @@ def test_a_tab_header_with_blanks_for_tabs_is_named(tmp_path):
                       encoding="utf-8")
     tab, _ = _read(tabbed, delimiter="\t", **settings)
     pd.testing.assert_frame_equal(blank, tab)
+
+
+def test_hundredths_and_rh_tenths_are_named_and_read_to_the_bit(tmp_path):
+    """Air temperature in integer hundredths and RH in integer tenths of a percent (a
+    logger storing integers) are named with their unit and read as the decimal text
+    would be: IEEE 754 division is correctly rounded, so 861 / 100 is the double nearest
+    8.61, as float("8.61") is (Python's float, common practice). Known truth: the
+    decimals the integers were made from."""
+    ends, values = _sunny_records()
+    celsius = values[:, 3].round(2)
+    rh = values[:, 5].round(1)
+    values[:, 3] = np.round(celsius * 100)
+    values[:, 5] = np.round(rh * 10)
+    path = _write(tmp_path / "h.csv", ends, values)
+    with pytest.raises(ImplausibleValueError, match=r'tair = "0.01 °C"'):
+        _read(path, missing=[-9999])
+    with pytest.raises(ImplausibleValueError, match=r'rh = "0.1 %"'):
+        _read(path, missing=[-9999], units={"vpd": "kPa", "tair": "0.01 °C"})
+    frame, _ = _read(path, missing=[-9999],
+                     units={"vpd": "kPa", "tair": "0.01 degC", "rh": "0.1 %"})
+    assert [float(f"{c:.2f}") for c in celsius] == frame["tair"].tolist()
+    assert [float(f"{r:.1f}") for r in rh] == frame["rh"].tolist()
