@@ -891,6 +891,16 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
              "most); the values look like °F "
              f"({(warmest - 32.0) * 5.0 / 9.0:.1f} °C)")
     if _whole_scaled("tair", np.asarray(tair, dtype=float), units.get("tair")) == "0.1 °C":
+        present = np.asarray(tair, dtype=float)
+        present = present[np.isfinite(present)]
+        if _outside("tair", to_canonical(present, "tair", "°F")).any():
+            # read as °F some values leave the range (-88 for -8.8 °C is -67 °C): tenths
+            return (f"column {columns['tair']!r} (tair, read as °C): its warmest 30 days "
+                    f"have a median of {warmest:.1f} °C, warmer than any month anywhere; "
+                    "every value is a whole number and, read as tenths of a degree, all are "
+                    f"plausible (a logger storing integers: {warmest / 10.0:.1f} °C), "
+                    "where read as °F some are not: set [input.units] tair = \"0.1 °C\" "
+                    "(or list tair in [input] accept_units)")
         # whole numbers: whole °F (old stations) and tenths of a degree (a logger's integer
         # storage) both read them plausibly, and they differ by far (round layouts32)
         return (f"{found} or like tenths of a degree written as whole numbers (a logger "

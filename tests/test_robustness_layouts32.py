@@ -243,3 +243,15 @@ def test_hundredths_and_rh_tenths_are_named_and_read_to_the_bit(tmp_path):
                      units={"vpd": "kPa", "tair": "0.01 degC", "rh": "0.1 %"})
     assert [float(f"{c:.2f}") for c in celsius] == frame["tair"].tolist()
     assert [float(f"{r:.1f}") for r in rh] == frame["rh"].tolist()
+
+
+def test_integer_tenths_that_fahrenheit_cannot_read_name_tenths_alone():
+    """A frosty spell in integer tenths (-80 for -8.0 °C) read as °F would be -62 °C,
+    below the plausible range (°C = (°F - 32) / 1.8, NIST SP 811 (m)): only tenths are
+    named."""
+    from fluxpart.unit_checks import _tair_message
+    t = np.arange(48 * 60)
+    tenths = np.round(10 * (5 + 13 * np.sin(t / 48 * 2 * math.pi)))
+    assert (tenths.min() - 32) / 1.8 < -60
+    message = _tair_message({"tair": tenths}, {}, {"tair": "ta"}, 30)
+    assert 'tair = "0.1 °C"' in message and '"°F"' not in message
