@@ -22,6 +22,10 @@ Two kinds of ordinary value are told (our choices, argued in each constant):
   resolution one value is about as frequent as its neighbours), is a reading; a code far
   more frequent than its neighbours (:data:`SPIKE_RATIO`) is a logger's code, as the NEE
   zero-code rule of :mod:`fluxpart.unit_checks` judges it.
+* a code at the bound of a column's values (VPD written 0 at saturation, since round
+  layouts32): a reading where the records beside its cells in time lie near it
+  (:data:`BOUND_NEAR`), as a continuous quantity reaching its bound does; an outage's
+  neighbours lie anywhere.
 
 References
 ----------
@@ -61,6 +65,20 @@ NIGHT_POTENTIAL = 50.0
 #: step beside it is a logger's code, not a reading (the NEE zero-code rule's ratio,
 #: ``unit_checks._ZERO_SPIKE_RATIO``).
 SPIKE_RATIO = 10.0
+#: A code at the bound of a column's values whose cells' neighbours in time lie a median
+#: distance from it below this share of the column's median distance from it is a
+#: reading [1] (round layouts32). Our choice: an outage falls at any value, so the ratio
+#: is about 1 for a code (0.95-1.04 for 0 put at 1000 random records of the invented
+#: grassland's VPD, u*, RH and air temperature); VPD written 0 at saturation gives 0.02
+#: there, since humidity changes slowly; a fifth lies far from both.
+BOUND_NEAR = 0.2
+#: Share of a column's cells a code at its bound must blank to be judged [1]: 1 %, the
+#: share of exact zeros at which the NEE zero-code rule judges (``unit_checks``). Below
+#: :data:`MIN_SHARE`, since such cells are no outage gap-filled like any other: they are
+#: the column's most humid (or calmest) records, blanked together (the invented grassland
+#: example's 362 VPD zeros, 2.1 %, under ``missing = [-9999, 0]`` moved its annual NEE
+#: from -241.67 to -240.42 and its daytime Reco by -2.8 g C m-2).
+BOUND_MIN_SHARE = 0.01
 
 
 def ordinary_code_message(name: str, column: str, code: float, values, night=None,
@@ -96,9 +114,16 @@ def ordinary_code_message(name: str, column: str, code: float, values, night=Non
     is_code = present & (np.abs(values - code) <= tolerance)
     cells = int(is_code.sum())
     count = int(present.sum())
-    if abs(code) >= JUDGED_MAGNITUDE or cells < MIN_CELLS or cells < MIN_SHARE * count:
+    if abs(code) >= JUDGED_MAGNITUDE or cells < MIN_CELLS:
         return None
-    shown = f"{code:g}"
+    others = values[present & ~is_code]
+    if (name not in ("rg", "ppfd") and others.size
+            and not (others.min() < code < others.max())):
+        if cells < BOUND_MIN_SHARE * count:
+            return None
+        return _bound_reading(name, column, code, values, present, is_code, others, source)
+    if cells < MIN_SHARE * count:
+        return None
     if name in ("rg", "ppfd"):
         if night is None or abs(code) > RG_NIGHT_CODE:
             return None
@@ -108,8 +133,7 @@ def ordinary_code_message(name: str, column: str, code: float, values, night=Non
         why = (f"{at_night:.0%} of them with the sun down, where a pyranometer reads about "
                "0 (a logger that clamps negative readings writes exactly 0)")
     else:
-        others = values[present & ~is_code]
-        if others.size == 0 or not (others.min() < code < others.max()):
+        if others.size == 0:
             return None
         distance = np.abs(others - code)
         step = float(distance.min())
@@ -118,6 +142,11 @@ def ordinary_code_message(name: str, column: str, code: float, values, night=Non
             return None             # far more frequent than its neighbours: a code
         why = (f"about as often as the values {step:.3g} beside it ({beside} cells), as a "
                f"measured value is, among values from {others.min():g} to {others.max():g}")
+    return _message(name, column, code, cells, count, why, source)
+
+
+def _message(name, column, code, cells, count, why, source) -> str:
+    shown = f"{code:g}"
     where = f" of {source!r}" if source else ""
     # the example of "other columns" is another column than this one (review37: a refused
     # NEE column was offered nee = [0], which blanks its own readings)
@@ -128,3 +157,42 @@ def ordinary_code_message(name: str, column: str, code: float, values, night=Non
             f"no value only in other columns, move it from [input] missing to "
             f"[input.missing_by_variable] for those (e.g. {example} = [{shown}]); if it means no "
             f"value in {column!r} too, add {name} = [{shown}] to [input.missing_by_variable]")
+
+
+def _bound_reading(name, column, code, values, present, is_code, others,
+                   source) -> str | None:
+    """A code at or beyond the bound of a column's values that the column reaches as a
+    reading: VPD written 0 at saturation (a logger computing VPD from an RH clamped at
+    100 %, or rounding), u* 0 on a calm night.
+
+    A code at the bound has no neighbouring values on both sides to compare its frequency
+    with (:data:`SPIKE_RATIO`), and a logger clamping at the bound writes it far more
+    often than any value beside it. Time tells instead: a measured quantity changes little
+    from one record to the next, so the records beside a reading of the bound lie near it,
+    while an outage falls at any value, its neighbours as far from the code as the
+    column's values are (a median distance ratio of about 1). The code is a reading where
+    the median distance of its cells' neighbours (the records just before and after, in
+    file order, holding another value) is below :data:`BOUND_NEAR` of the column's median
+    distance from it.
+
+    Returns
+    -------
+    str or None
+        The refusal of :func:`ordinary_code_message`, or None.
+    """
+    index = np.flatnonzero(is_code)
+    beside = np.concatenate([index - 1, index + 1])
+    beside = beside[(beside >= 0) & (beside < values.size)]
+    beside = beside[present[beside] & ~is_code[beside]]
+    if beside.size < MIN_CELLS:
+        return None
+    near = float(np.median(np.abs(values[beside] - code)))
+    spread = float(np.median(np.abs(others - code)))
+    if not spread > 0.0 or near >= BOUND_NEAR * spread:
+        return None
+    why = (f"at the bound of its values (the others from {others.min():g} to "
+           f"{others.max():g}), and the records beside them in time lie a median {near:.3g} "
+           f"from it where the column lies a median {spread:.3g} from it: a quantity "
+           f"reaching {code:g} as a reading (VPD at saturation), not an outage, whose "
+           "neighbours lie anywhere")
+    return _message(name, column, code, int(is_code.sum()), int(present.sum()), why, source)

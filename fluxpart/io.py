@@ -2571,6 +2571,22 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int,
                 f"by {setting_text(separator)}, the data lines their {width + extra} fields "
                 f"by the delimiter {setting_text(delimiter)} ([input] delimiter): write the header "
                 f"with the data's delimiter in a copy of the file")
+        blank_names = [name for name in re.split(r" {2,}", str(raw.columns[0]).strip())
+                       if name]
+        if (width == 1 and not separator and delimiter == "\t"
+                and len(blank_names) == width + extra):
+            # the header's tabs turned into runs of blanks (an editor's setting) over
+            # tab-delimited data lines: the header is one name (layouts32; layouts31
+            # named such blanks on data lines)
+            whitespace = ("" if any(" " in name for name in blank_names) else
+                          ", or set [input] delimiter = \"whitespace\" (no name holds a "
+                          "blank)")
+            raise InputFileError(
+                f"input file {str(path)!r}: the header line separates its "
+                f"{len(blank_names)} names by runs of blanks, the data lines their "
+                f"{width + extra} fields by tabs ([input] delimiter): tabs turned into "
+                f"blanks by an editor? write the header with tabs in a copy of the file"
+                f"{whitespace}")
         if width == 1 and separator:
             # a header of one cell holding another separator: decimal commas in the data
             # lines split them where the header line stays whole

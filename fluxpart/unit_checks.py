@@ -37,6 +37,7 @@ from .nee_smoothing import (
     running_mean_length,
 )
 from .variables import (
+    LANGLEY_PER_MINUTE,
     PER_INTERVAL_UNITS,
     PPFD_PER_RG,
     READER_VARIABLES,
@@ -225,6 +226,9 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
     rest = present[raw_present != code]
     if count >= 3 and (rest.size == 0 or _outside(name, rest).mean() <= IMPLAUSIBLE_SHARE):
         return message + missing_code_hint(code, count, missing)
+    tenths = _tenths_hint(name, raw_present, unit)
+    if tenths:
+        return message + tenths
     better = _better_units(name, raw_present, unit, interval_minutes)
     if better:
         return message + (f"; the values look like {better[0]!r}: set [input.units] {name} = "
@@ -232,6 +236,49 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
     return message + ("; check the column mapping and [input.units]; if these are "
                       "instrument faults, mark them with a missing code (or the site flag) "
                       f"in a copy of the file, or list {name} in [input] accept_units")
+
+
+#: Units of whole numbers counting a fraction of the canonical unit (a logger's integer
+#: storage, :data:`fluxpart.variables`): variable -> (divisor, unit) in the order tried;
+#: named only for whole numbers (round layouts32)
+SCALED_UNITS = {"tair": ((10, "0.1 °C"), (100, "0.01 °C")),
+                "tsoil": ((10, "0.1 °C"), (100, "0.01 °C")),
+                "rh": ((10, "0.1 %"),)}
+_SCALED_SPELLINGS = frozenset({"0.1 °C", "0.1 degC", "0.01 °C", "0.01 degC", "0.1 %"})
+
+
+def _whole_scaled(name: str, raw_present: np.ndarray, unit) -> str | None:
+    """The unit of a fraction of a degree (or percent) under which a column read in the
+    canonical unit and written as whole numbers is plausible, or None.
+
+    Every value must be a whole number, none outside the plausible range once divided,
+    and the divided values' 90th percentile of magnitude within the variable's typical
+    range (:data:`_TYPICAL_P90`): tenths of a degree divided by 100 stay within the range
+    but hover near 0 °C all year, which no site's temperature does.
+    """
+    if name not in SCALED_UNITS or not reads_as_canonical(name, unit):
+        return None
+    values = raw_present[np.isfinite(raw_present)]
+    if values.size < _IMPLAUSIBLE_MIN_COUNT or not np.all(values == np.round(values)):
+        return None
+    low, high = _TYPICAL_P90[name]
+    for divisor, scaled in SCALED_UNITS[name]:
+        divided = values / divisor
+        if (not _outside(name, divided).any()
+                and low <= float(np.percentile(np.abs(divided), 90)) <= high):
+            return scaled
+    return None
+
+
+def _tenths_hint(name: str, raw_present: np.ndarray, unit) -> str:
+    """The refusal's fix for a temperature or RH written as whole numbers of a tenth or
+    hundredth of its unit (a logger's integer storage), or ''."""
+    scaled = _whole_scaled(name, raw_present, unit)
+    if scaled is None:
+        return ""
+    return (f"; every value is a whole number and, read as {scaled!r}, all are plausible "
+            f"(a logger storing integers, 153 for 15.3): set [input.units] {name} = "
+            f"\"{scaled}\" (or list {name} in [input] accept_units)")
 
 
 def _rh_fraction(rh: np.ndarray) -> bool:
@@ -247,6 +294,8 @@ def _better_units(name: str, raw_present: np.ndarray, declared,
     declared_probe = to_canonical(probe, name, declared, interval_minutes=interval_minutes)
     candidates, seen = [], []
     for unit in units_for(name):
+        if unit in _SCALED_SPELLINGS:
+            continue                # named by _tenths_hint, from whole numbers only
         converted_probe = to_canonical(probe, name, unit, interval_minutes=interval_minutes)
         if np.allclose(converted_probe, declared_probe) or any(
                 np.allclose(converted_probe, other) for other in seen):
@@ -842,10 +891,28 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
         warmest = float(np.nanmax(np.nanmedian(grid[enough], axis=1)))
     if not _WARMEST_MONTH < warmest <= _WARMEST_MONTH * 9.0 / 5.0 + 32.0:
         return None     # a plausible °C record, or beyond °F too (kelvin: the range check)
-    return (f"column {columns['tair']!r} (tair, read as °C): its warmest 30 days have a median "
-            f"of {warmest:.1f} °C, warmer than any month anywhere (about 42.5 °C at most); the "
-            f"values look like °F ({(warmest - 32.0) * 5.0 / 9.0:.1f} °C): set [input.units] "
-            "tair = \"°F\" (or list tair in [input] accept_units)")
+    found = (f"column {columns['tair']!r} (tair, read as °C): its warmest 30 days have a "
+             f"median of {warmest:.1f} °C, warmer than any month anywhere (about 42.5 °C at "
+             "most); the values look like °F "
+             f"({(warmest - 32.0) * 5.0 / 9.0:.1f} °C)")
+    if _whole_scaled("tair", np.asarray(tair, dtype=float), units.get("tair")) == "0.1 °C":
+        present = np.asarray(tair, dtype=float)
+        present = present[np.isfinite(present)]
+        if _outside("tair", to_canonical(present, "tair", "°F")).any():
+            # read as °F some values leave the range (-88 for -8.8 °C is -67 °C): tenths
+            return (f"column {columns['tair']!r} (tair, read as °C): its warmest 30 days "
+                    f"have a median of {warmest:.1f} °C, warmer than any month anywhere; "
+                    "every value is a whole number and, read as tenths of a degree, all are "
+                    f"plausible (a logger storing integers: {warmest / 10.0:.1f} °C), "
+                    "where read as °F some are not: set [input.units] tair = \"0.1 °C\" "
+                    "(or list tair in [input] accept_units)")
+        # whole numbers: whole °F (old stations) and tenths of a degree (a logger's integer
+        # storage) both read them plausibly, and they differ by far (round layouts32)
+        return (f"{found} or like tenths of a degree written as whole numbers (a logger "
+                f"storing integers: {warmest / 10.0:.1f} °C): set [input.units] tair = \"°F\" "
+                "or tair = \"0.1 °C\", as the logger's program says (or list tair in "
+                "[input] accept_units)")
+    return f"{found}: set [input.units] tair = \"°F\" (or list tair in [input] accept_units)"
 
 
 def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes: int):
@@ -992,15 +1059,22 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
     ratio_kw = float(np.percentile(values * 1000.0 / np.asarray(potential)[bright], 90))
     per_interval = 1e6 / (interval_minutes * 60.0)
     ratio_mj = ratio_kw * per_interval / 1000.0
+    # an old actinograph's calories per cm2 and minute (round layouts32): 697 W m-2 each
+    ratio_cal = ratio_kw * LANGLEY_PER_MINUTE / 1000.0
     # clear-sky global radiation is about 0.75 of the potential (common practice)
     candidates = sorted([(abs(math.log(ratio_kw / 0.75)), "kW m-2"),
-                         (abs(math.log(ratio_mj / 0.75)), "MJ m-2")])
-    best, other = candidates[0][1], candidates[1][1]
+                         (abs(math.log(ratio_mj / 0.75)), "MJ m-2"),
+                         (abs(math.log(ratio_cal / 0.75)), "cal cm-2 min-1")])
+    best, others = candidates[0][1], [unit for _, unit in candidates[1:]]
+    # the three scales lie within a factor 1.8 at 30-minute records (1000, 697, 556 W
+    # m-2 per unit): cloud moves the ratio as much, so the others are named as readings
     return (f"column {columns['rg']!r} (rg, read as W m-2): with the sun well up, 90 % of "
             f"values are below {np.percentile(values, 90):.3g}, a thousandth of what a "
             f"pyranometer in W m-2 shows; the values look like {best!r}"
             + (" per interval" if best == "MJ m-2" else "")
-            + f": set [input.units] rg = \"{best}\" (or \"{other}\"; or list rg in [input] "
+            + f": set [input.units] rg = \"{best}\" (or \"{others[0]}\" or "
+            f"\"{others[1]}\", which the values fit less well and which give "
+            "other budgets: the logger's manual says which; or list rg in [input] "
             "accept_units)")
 
 

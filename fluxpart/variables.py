@@ -116,27 +116,47 @@ READER_VARIABLES: dict[str, Variable] = {
 #: from PPFD carries an error of roughly ±10 %.
 PPFD_PER_RG = 0.46 * 4.57
 
+#: One langley (thermochemical calorie per cm2) per minute in W m-2: 4.184 J cal-1 x
+#: 1e4 cm2 m-2 / 60 s min-1 (NIST SP 811, appendix B (m)); old actinograph records of
+#: global radiation are in it (a solar constant near 1.95 ly min-1 (m)).
+LANGLEY_PER_MINUTE = 4.184 * 1e4 / 60.0
+
 # unit spelling -> (scale, offset) such that canonical = value * scale + offset
 _TEMPERATURE = {"°C": (1.0, 0.0), "degC": (1.0, 0.0), "C": (1.0, 0.0),
                 "K": (1.0, -KELVIN_OFFSET), "kelvin": (1.0, -KELVIN_OFFSET),
                 # degrees Fahrenheit: °C = (°F - 32) x 5/9 (NIST SP 811, appendix B (m))
-                "°F": (5.0 / 9.0, -32.0 * 5.0 / 9.0), "degF": (5.0 / 9.0, -32.0 * 5.0 / 9.0)}
+                "°F": (5.0 / 9.0, -32.0 * 5.0 / 9.0), "degF": (5.0 / 9.0, -32.0 * 5.0 / 9.0),
+                # tenths of a degree written as whole numbers (a logger storing integers,
+                # 153 for 15.3 °C; round layouts32)
+                "0.1 °C": (0.1, 0.0), "0.1 degC": (0.1, 0.0),
+                "0.01 °C": (0.01, 0.0), "0.01 degC": (0.01, 0.0)}
 _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
     "nee": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),
             "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0),
             "g C m-2": (1e6 / CARBON_MOLAR_MASS, 0.0)},
     "rg": {"W m-2": (1.0, 0.0), "W/m2": (1.0, 0.0), "kW m-2": (1000.0, 0.0),
-           "MJ m-2": (1e6, 0.0)},
+           "MJ m-2": (1e6, 0.0),
+           # calories per cm2 and minute, old actinographs' and pyranometer records' unit:
+           # the langley is 1 thermochemical cal cm-2 = 4.184 J / 1e-4 m2 = 41,840 J m-2
+           # (NIST SP 811, appendix B (m)), so 1 ly min-1 = 41,840 / 60 = 697.33 W m-2
+           "cal cm-2 min-1": (LANGLEY_PER_MINUTE, 0.0),
+           "ly min-1": (LANGLEY_PER_MINUTE, 0.0)},
     "tair": _TEMPERATURE,
     "tsoil": _TEMPERATURE,
     "vpd": {"hPa": (1.0, 0.0), "mbar": (1.0, 0.0), "kPa": (10.0, 0.0), "Pa": (0.01, 0.0)},
     "ustar": {"m s-1": (1.0, 0.0), "m/s": (1.0, 0.0)},
-    "rh": {"%": (1.0, 0.0), "fraction": (100.0, 0.0), "1": (100.0, 0.0)},
+    "rh": {"%": (1.0, 0.0), "fraction": (100.0, 0.0), "1": (100.0, 0.0),
+           "0.1 %": (0.1, 0.0)},          # tenths of a percent as whole numbers (layouts32)
     "nee_flag": {"1": (1.0, 0.0)},
     "storage": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),
                 "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0)},
     "ppfd": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0)},
 }
+
+#: Units of whole numbers counting a tenth or hundredth of the canonical unit (a logger's
+#: integer storage; round layouts32) -> the divisor applied
+DIVIDED_UNITS = {"0.1 °C": 10.0, "0.1 degC": 10.0, "0.01 °C": 100.0, "0.01 degC": 100.0,
+                 "0.1 %": 10.0}
 
 #: Units of an amount per record interval rather than a rate: (variable, unit) whose
 #: scale is divided by the interval in seconds (``"MJ m-2"`` of Rg = energy received
@@ -320,6 +340,11 @@ def to_canonical(values, name: str, unit: str | None = None, *,
                             "interval; the record interval is needed to convert it")
         scale = scale / (float(interval_minutes) * 60.0)
     with np.errstate(over="ignore", invalid="ignore"):
+        if unit in DIVIDED_UNITS:
+            # whole numbers of tenths or hundredths divided, not multiplied by 0.1: 153 /
+            # 10 is the double nearest 15.3, as the text "15.3" reads (IEEE 754 division
+            # is correctly rounded), where 153 * 0.1 may be one unit in the last place off
+            return values / DIVIDED_UNITS[unit]
         return values * scale + offset
 
 
