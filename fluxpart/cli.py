@@ -20,7 +20,7 @@ import warnings
 from pathlib import Path
 
 from . import __version__
-from .errors import ConfigError, FluxpartError, FluxpartWarning
+from .errors import ConfigError, FluxpartError, FluxpartWarning, ResourceShortage
 from .manifest import CAUTION
 
 __all__ = ["main"]
@@ -875,6 +875,12 @@ def main(argv=None) -> int:
         except OSError:
             pass                    # a hung-up terminal takes no more output (EIO)
         return 128 + int(stop.signum)
+    except ResourceShortage as error:
+        # memory or a thread refused while a stored table was read (store.shortage): said
+        # so, not "the file is damaged"
+        print(f"error: {error}; {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the "
+              "process more memory", file=sys.stderr)
+        return 2
     except MemoryError:
         # a memory limit (ulimit -v, a container's or a batch job's) reached inside NumPy or
         # pandas: a traceback ending in _ArrayMemoryError; the write stages are undone on

@@ -89,12 +89,43 @@ def _load_scipy_blas() -> None:
         return
     libraries = sorted((Path(spec.origin).parent.parent / "scipy.libs").glob("libscipy_openblas*.so*"))
     try:
-        for library in libraries:
-            ctypes.CDLL(str(library))
+        loaded = [ctypes.CDLL(str(library)) for library in libraries]
     except OSError:
-        libraries = []
+        libraries, loaded = [], []
     if not libraries:
         import scipy.linalg  # noqa: F401
+    for library in loaded:
+        _reserve_scipy_buffer(library)
+
+
+_RESERVE_SIDE = 256     # a product of two 256 x 256 matrices: above OpenBLAS's small-matrix
+                        # path (which needs no buffer), a few milliseconds
+
+
+def _reserve_scipy_buffer(library) -> None:
+    """Have a SciPy OpenBLAS take its work buffers now, by one matrix product.
+
+    Its Fortran ``dgemm`` (LP64: 32-bit integers) through :mod:`ctypes`, so that SciPy
+    need not be imported (~0.5 s). A library without that symbol is left as it is.
+    """
+    import ctypes
+
+    import numpy as np
+
+    dgemm = getattr(library, "scipy_dgemm_", None)
+    if dgemm is None:
+        return
+    side = ctypes.c_int(_RESERVE_SIDE)
+    one, zero = ctypes.c_double(1.0), ctypes.c_double(0.0)
+    plain = ctypes.c_char(b"N")
+    a = np.ones((_RESERVE_SIDE, _RESERVE_SIDE), order="F")
+    c = np.empty_like(a)
+    pointer = ctypes.POINTER(ctypes.c_double)
+    dgemm.restype = None
+    dgemm(ctypes.byref(plain), ctypes.byref(plain), ctypes.byref(side), ctypes.byref(side),
+          ctypes.byref(side), ctypes.byref(one), a.ctypes.data_as(pointer), ctypes.byref(side),
+          a.ctypes.data_as(pointer), ctypes.byref(side), ctypes.byref(zero),
+          c.ctypes.data_as(pointer), ctypes.byref(side))
 
 
 def load_blas_libraries() -> None:
@@ -106,9 +137,25 @@ def load_blas_libraries() -> None:
     computation, hung there holding its folder's lock (0.5 GB limit: 10 minutes of CPU and
     counting). Called at the start of a computation, when its memory is still free; a
     library loaded once is not loaded again (``dlopen``), so the record is the same.
-    """
-    import numpy  # noqa: F401
 
+    Loading is not all: OpenBLAS maps its work buffers (tens of MB each) at the first
+    matrix product that needs one, and where that fails it prints "Memory allocation still
+    failed after 10 retries, giving up" and ends the process (``exit(1)``), before Python
+    can say why: measured under ``ulimit -v`` from 425 to 700 MB, `run` and `verify` ended
+    so at 7 of 12 limits, the others with one ``error:`` line or a result. One product
+    of each library now (:func:`_reserve_buffers`), once per process, takes those buffers
+    at the start; OpenBLAS keeps a buffer once mapped and hands it out again, so later
+    products need no new one. A result's numbers do not depend on it.
+    """
+    _reserve_buffers()
+
+
+@lru_cache(maxsize=1)
+def _reserve_buffers() -> None:
+    import numpy as np
+
+    a = np.ones((_RESERVE_SIDE, _RESERVE_SIDE))
+    np.matmul(a, a, out=np.empty_like(a))      # NumPy's OpenBLAS (cblas_dgemm)
     _load_scipy_blas()
 
 
