@@ -187,6 +187,31 @@ def shortage(path, error: Exception) -> ResourceShortage | None:
         "not judged")
 
 
+def damaged_table(path, error: Exception) -> InputFileError:
+    """The error for a result table pyarrow cannot decode: cut short, a byte changed.
+
+    pyarrow's text may span lines (a footer's Thrift that does not decode ends in a line
+    break); it is given on one.
+    """
+    text = " ".join(str(error).split())
+    return InputFileError(f"result table {str(path)!r} is not a readable Parquet file "
+                          f"({text}); the file is damaged: rerun to rewrite the folder")
+
+
+def unreadable_table(path, error: OSError) -> InputFileError:
+    """The error for a result table that raised :class:`OSError` while read.
+
+    pyarrow raises a plain :class:`OSError` without an ``errno`` for a footer that does
+    not decode ("Couldn't deserialize thrift", a byte changed in the footer): that file is
+    damaged, and was named so only with the fix of a permission fault ("make it and its
+    folder readable by this user"), on two lines. A fault of the system (an ``errno``) keeps
+    :func:`unreadable`.
+    """
+    if error.errno is None:
+        return damaged_table(path, error)
+    return unreadable(path, error)
+
+
 def unreadable(path, error: OSError) -> InputFileError:
     """The error for a file that exists but cannot be read (permissions, an I/O error).
 
@@ -538,11 +563,9 @@ def read_table(path) -> pd.DataFrame:
         with parquet_source(path) as source, pq.ParquetFile(source) as file:
             table = file.read()
     except OSError as error:            # no permission, an I/O error
-        raise shortage(path, error) or unreadable(path, error) from None
+        raise shortage(path, error) or unreadable_table(path, error) from None
     except (pa.ArrowException, ValueError, MemoryError) as error:   # cut short, not Parquet
-        raise shortage(path, error) or InputFileError(f"result table {str(path)!r} is not a readable Parquet file "
-                             f"({error}); the file is damaged: rerun to rewrite the "
-                             "folder") from None
+        raise shortage(path, error) or damaged_table(path, error) from None
     meta = table.schema.metadata or {}
     if _SCHEMA_KEY not in meta:
         raise InputFileError(f"{str(path)!r} is not a table written by fluxpart "
@@ -588,11 +611,9 @@ def table_shape(path) -> tuple[int, list[str]]:
         with parquet_source(path) as source:
             metadata = pq.read_metadata(source)
     except OSError as error:
-        raise shortage(path, error) or unreadable(path, error) from None
+        raise shortage(path, error) or unreadable_table(path, error) from None
     except (pa.ArrowException, ValueError, MemoryError) as error:
-        raise shortage(path, error) or InputFileError(f"result table {str(path)!r} is not a readable Parquet file "
-                             f"({error}); the file is damaged: rerun to rewrite the "
-                             "folder") from None
+        raise shortage(path, error) or damaged_table(path, error) from None
     return metadata.num_rows, list(metadata.schema.to_arrow_schema().names)
 
 
