@@ -138,3 +138,27 @@ def test_wide_files_are_not_sorted_column_by_column_for_a_clock_label():
     said = zone_column_message(columns, "%Y%m%d%H%M", None, 1.0, "tower.csv")
     assert said is None
     assert time.perf_counter() - started < 4.0
+
+
+def test_a_result_folder_named_in_another_unicode_form_is_named(copy, capsys):
+    """A result folder copied through a Mac keeps an accented name decomposed (NFD; HFS+
+    stores names so (m); Unicode Standard Annex #15, NFC and NFD (m)); the auditor types
+    it composed (NFC). `verify`, `report`, `export` and `diff` said only "does not exist:
+    give the folder that fluxpart run or batch wrote" beside a folder that looks the same
+    in every listing. Now the line names the folder's entry in the other form and the
+    fix; checked with Python's ``unicodedata`` (a general-purpose library)."""
+    import unicodedata
+
+    from fluxpart.cli import main
+
+    composed = unicodedata.normalize("NFC", "Ergebnis Grünland")
+    decomposed = unicodedata.normalize("NFD", composed)
+    assert composed != decomposed
+    (copy / "out").rename(copy / decomposed)
+    for command in (["verify", str(copy / composed)], ["report", str(copy / composed)],
+                    ["diff", str(copy / composed), str(copy / decomposed)]):
+        assert main(command) == 2
+        err = capsys.readouterr().err.strip()
+        assert err.count("\n") == 0 and "another Unicode form (NFD" in err, command
+        assert repr(decomposed) in err
+    assert main(["verify", str(copy / decomposed)]) == 0
