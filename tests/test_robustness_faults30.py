@@ -162,3 +162,23 @@ def test_a_result_folder_named_in_another_unicode_form_is_named(copy, capsys):
         assert err.count("\n") == 0 and "another Unicode form (NFD" in err, command
         assert repr(decomposed) in err
     assert main(["verify", str(copy / decomposed)]) == 0
+
+
+def test_a_network_file_in_a_folder_named_with_brackets_finds_its_sites(tmp_path):
+    """Known-truth recovery on invented data: a network file in a project folder named
+    ``towers [2021]`` with two site configs below it (``*/*.toml``). The folder was joined
+    to the pattern unescaped, so glob read ``[2021]`` as one character of 2, 0 or 1
+    (POSIX glob(7): brackets are pattern characters (m)) and the batch refused to start:
+    "matches no .toml file". Python's ``glob.escape`` (a general-purpose library) makes
+    the folder literal; both sites are found, the pattern's own ``*`` still a pattern."""
+    from bundles import make_bundle
+
+    from fluxpart.batch import read_sites_file
+
+    project = tmp_path / "towers [2021]"
+    make_bundle(project / "north", name="north.toml")
+    make_bundle(project / "south", name="south.toml")
+    (project / "network.toml").write_text('[batch]\nsites = ["*/*.toml"]\nout = "o"\n')
+    network = read_sites_file(project / "network.toml")
+    assert [key for key, _ in network.sites] == ["north", "south"]
+    assert [config.parent.name for _, config in network.sites] == ["north", "south"]
