@@ -789,6 +789,8 @@ def _too_long(error: OSError) -> str:
 #: The commands that compute a result in this process and write (or compare) its platform
 #: record (batch computes in its workers, whose `process` loads them first).
 _COMPUTING = ("run", "demo", "verify")
+#: commands that read results with NumPy only (fingerprint.reserve_numpy_blas)
+_READING = ("report", "export", "diff")
 
 
 def _tolerate_encoding(stream) -> str | None:
@@ -841,6 +843,10 @@ def main(argv=None) -> int:
             from .fingerprint import load_blas_libraries
 
             load_blas_libraries()
+        elif args.command in _READING:
+            from .fingerprint import reserve_numpy_blas
+
+            reserve_numpy_blas()
         with warnings.catch_warnings():
             # the commands print a result's warnings themselves, once, in their output
             warnings.simplefilter("ignore", FluxpartWarning)

@@ -24,7 +24,8 @@ import platform
 from functools import lru_cache
 from pathlib import Path
 
-__all__ = ["code_fingerprint", "load_blas_libraries", "platform_differences", "platform_record"]
+__all__ = ["code_fingerprint", "load_blas_libraries", "platform_differences", "platform_record",
+           "reserve_numpy_blas"]
 
 
 @lru_cache(maxsize=1)
@@ -152,11 +153,23 @@ def load_blas_libraries() -> None:
 
 @lru_cache(maxsize=1)
 def _reserve_buffers() -> None:
+    reserve_numpy_blas()
+    _load_scipy_blas()
+
+
+@lru_cache(maxsize=1)
+def reserve_numpy_blas() -> None:
+    """Have NumPy's BLAS take its work buffers now, by one matrix product (once).
+
+    For the commands that only read results (`report`, `export`, `diff`): matplotlib's
+    and pandas' products use NumPy's OpenBLAS, which ended `report` under ``ulimit -v``
+    450 MB with "OpenBLAS error: Memory allocation still failed after 10 retries, giving
+    up" (exit 1); see :func:`load_blas_libraries`. SciPy's is not loaded for them.
+    """
     import numpy as np
 
     a = np.ones((_RESERVE_SIDE, _RESERVE_SIDE))
     np.matmul(a, a, out=np.empty_like(a))      # NumPy's OpenBLAS (cblas_dgemm)
-    _load_scipy_blas()
 
 
 def _blas_libraries() -> list[dict]:

@@ -182,3 +182,39 @@ def test_a_network_file_in_a_folder_named_with_brackets_finds_its_sites(tmp_path
     network = read_sites_file(project / "network.toml")
     assert [key for key, _ in network.sites] == ["north", "south"]
     assert [config.parent.name for _, config in network.sites] == ["north", "south"]
+
+
+def test_matplotlib_that_will_not_load_is_not_called_not_installed(monkeypatch):
+    """Under ``ulimit -v`` 300 MB `report` said "the report needs matplotlib, which is not
+    installed; pip install" with matplotlib installed: its compiled module's mapping
+    failed ("failed to map segment from shared object"). ``importlib.util.find_spec``
+    (Python's standard library) tells installed from not; an installed matplotlib whose
+    part does not load is named so, with the memory limit as the likely cause."""
+    import importlib.util
+
+    from fluxpart.errors import FluxpartError
+    from fluxpart.figures import _import_matplotlib
+
+    assert importlib.util.find_spec("matplotlib") is not None
+    monkeypatch.setitem(sys.modules, "matplotlib.figure", None)   # its import now fails
+    with pytest.raises(FluxpartError, match="installed but could not be loaded") as caught:
+        _import_matplotlib()
+    assert "ulimit -v" in str(caught.value) and "which is not installed" not in str(
+        caught.value)
+
+
+def test_the_reading_commands_take_numpys_blas_buffers_first(bundle, monkeypatch):
+    """`report`, `export` and `diff` read results with NumPy only; their BLAS products
+    (matplotlib's, pandas') ended `report` under ``ulimit -v`` 450 MB with OpenBLAS's
+    "Memory allocation still failed after 10 retries, giving up" (exit 1). Each now has
+    NumPy's OpenBLAS take its buffers before it reads (see the limited-product test
+    above for what that buys); SciPy's is not loaded for them."""
+    from fluxpart import cli, fingerprint
+
+    taken = []
+    monkeypatch.setattr(fingerprint, "reserve_numpy_blas", lambda: taken.append("numpy"))
+    monkeypatch.setattr(fingerprint, "load_blas_libraries", lambda: taken.append("both"))
+    out = bundle / "out"
+    cli.main(["diff", str(out), str(out)])
+    cli.main(["export", str(out), "--csv", str(bundle.parent / "faults30-csv")])
+    assert taken == ["numpy", "numpy"]
