@@ -74,6 +74,7 @@ def _cpu_features() -> list[str]:
     return sorted(name for name, present in __cpu_features__.items() if present)
 
 
+@lru_cache(maxsize=1)
 def _load_scipy_blas() -> None:
     """Load the BLAS that ``scipy.linalg`` would load, without importing SciPy (~0.5 s).
 
@@ -95,28 +96,30 @@ def _load_scipy_blas() -> None:
         libraries, loaded = [], []
     if not libraries:
         import scipy.linalg  # noqa: F401
-    for library in loaded:
-        _reserve_scipy_buffer(library)
+    for path, library in zip(libraries, loaded, strict=False):
+        _reserve_scipy_buffer(library, wide="openblas64" in path.name)
 
 
 _RESERVE_SIDE = 256     # a product of two 256 x 256 matrices: above OpenBLAS's small-matrix
                         # path (which needs no buffer), a few milliseconds
 
 
-def _reserve_scipy_buffer(library) -> None:
+def _reserve_scipy_buffer(library, wide: bool = False) -> None:
     """Have a SciPy OpenBLAS take its work buffers now, by one matrix product.
 
-    Its Fortran ``dgemm`` (LP64: 32-bit integers) through :mod:`ctypes`, so that SciPy
-    need not be imported (~0.5 s). A library without that symbol is left as it is.
+    Its Fortran ``dgemm`` through :mod:`ctypes`, so that SciPy need not be imported
+    (~0.5 s): ``scipy_dgemm_`` with 32-bit integers (LP64), or ``scipy_dgemm_64_`` with
+    64-bit ones where the library's name says ``openblas64`` (ILP64). A library without
+    that symbol is left as it is.
     """
     import ctypes
 
     import numpy as np
 
-    dgemm = getattr(library, "scipy_dgemm_", None)
+    dgemm = getattr(library, "scipy_dgemm_64_" if wide else "scipy_dgemm_", None)
     if dgemm is None:
         return
-    side = ctypes.c_int(_RESERVE_SIDE)
+    side = (ctypes.c_int64 if wide else ctypes.c_int)(_RESERVE_SIDE)
     one, zero = ctypes.c_double(1.0), ctypes.c_double(0.0)
     plain = ctypes.c_char(b"N")
     a = np.ones((_RESERVE_SIDE, _RESERVE_SIDE), order="F")
