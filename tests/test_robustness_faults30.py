@@ -35,7 +35,7 @@ def test_blas_buffers_are_taken_at_the_start_not_when_memory_is_short():
     """OpenBLAS maps a work buffer at the first matrix product that needs one; where the
     address space of a memory limit (``setrlimit(RLIMIT_AS)``, ``ulimit -v``) leaves no
     room it prints "Memory allocation still failed after 10 retries, giving up" and calls
-    ``exit(1)`` (measured: `run` and `verify` ended so at 7 of 12 limits from 425 to 700
+    ``exit(1)`` (OpenBLAS ``driver/others/memory.c``, ``blas_memory_alloc`` (m); measured: `run` and `verify` ended so at 7 of 12 limits from 425 to 700
     MB). After :func:`fingerprint.load_blas_libraries` a product of NumPy's and of
     SciPy's OpenBLAS must still run with 4 MB of address space left. Known truth: the
     product of two 300 x 300 matrices of ones holds 300 (matrix product, by hand)."""
@@ -206,8 +206,9 @@ def test_matplotlib_that_will_not_load_is_not_called_not_installed(monkeypatch):
 def test_the_reading_commands_take_numpys_blas_buffers_first(bundle, monkeypatch):
     """`report`, `export` and `diff` read results with NumPy only; their BLAS products
     (matplotlib's, pandas') ended `report` under ``ulimit -v`` 450 MB with OpenBLAS's
-    "Memory allocation still failed after 10 retries, giving up" (exit 1). Each now has
-    NumPy's OpenBLAS take its buffers before it reads (see the limited-product test
+    "Memory allocation still failed after 10 retries, giving up" (exit 1; OpenBLAS's
+    ``blas_memory_alloc`` in ``driver/others/memory.c`` ends the process so (m)). Each now
+    has NumPy's OpenBLAS take its buffers before it reads (see the limited-product test
     above for what that buys); SciPy's is not loaded for them."""
     from fluxpart import cli, fingerprint
 
