@@ -91,45 +91,16 @@ def _load_scipy_blas() -> None:
         return
     libraries = sorted((Path(spec.origin).parent.parent / "scipy.libs").glob("libscipy_openblas*.so*"))
     try:
-        loaded = [ctypes.CDLL(str(library)) for library in libraries]
+        for library in libraries:
+            ctypes.CDLL(str(library))
     except OSError:
-        libraries, loaded = [], []
+        libraries = []
     if not libraries:
         import scipy.linalg  # noqa: F401
-    for path, library in zip(libraries, loaded, strict=False):
-        _reserve_scipy_buffer(library, wide="openblas64" in path.name)
 
 
 _RESERVE_SIDE = 256     # a product of two 256 x 256 matrices: above OpenBLAS's small-matrix
                         # path (which needs no buffer), a few milliseconds
-
-
-def _reserve_scipy_buffer(library, wide: bool = False) -> None:
-    """Have a SciPy OpenBLAS take its work buffers now, by one matrix product.
-
-    Its Fortran ``dgemm`` through :mod:`ctypes`, so that SciPy need not be imported
-    (~0.5 s): ``scipy_dgemm_`` with 32-bit integers (LP64), or ``scipy_dgemm_64_`` with
-    64-bit ones where the library's name says ``openblas64`` (ILP64). A library without
-    that symbol is left as it is.
-    """
-    import ctypes
-
-    import numpy as np
-
-    dgemm = getattr(library, "scipy_dgemm_64_" if wide else "scipy_dgemm_", None)
-    if dgemm is None:
-        return
-    side = (ctypes.c_int64 if wide else ctypes.c_int)(_RESERVE_SIDE)
-    one, zero = ctypes.c_double(1.0), ctypes.c_double(0.0)
-    plain = ctypes.c_char(b"N")
-    a = np.ones((_RESERVE_SIDE, _RESERVE_SIDE), order="F")
-    c = np.empty_like(a)
-    pointer = ctypes.POINTER(ctypes.c_double)
-    dgemm.restype = None
-    dgemm(ctypes.byref(plain), ctypes.byref(plain), ctypes.byref(side), ctypes.byref(side),
-          ctypes.byref(side), ctypes.byref(one), a.ctypes.data_as(pointer), ctypes.byref(side),
-          a.ctypes.data_as(pointer), ctypes.byref(side), ctypes.byref(zero),
-          c.ctypes.data_as(pointer), ctypes.byref(side))
 
 
 def load_blas_libraries() -> None:
@@ -146,10 +117,13 @@ def load_blas_libraries() -> None:
     matrix product that needs one, and where that fails it prints "Memory allocation still
     failed after 10 retries, giving up" and ends the process (``exit(1)``), before Python
     can say why: measured under ``ulimit -v`` from 425 to 700 MB, `run` and `verify` ended
-    so at 7 of 12 limits, the others with one ``error:`` line or a result. One product
-    of each library now (:func:`_reserve_buffers`), once per process, takes those buffers
-    at the start; OpenBLAS keeps a buffer once mapped and hands it out again, so later
-    products need no new one. A result's numbers do not depend on it.
+    so at 7 of 12 limits (NumPy's OpenBLAS, in ``lstsq``), the others with one ``error:``
+    line or a result. One product of NumPy's (:func:`reserve_numpy_blas`), once per
+    process, takes its buffer at the start; OpenBLAS keeps a buffer once mapped and hands
+    it out again, so later products need no new one. A result's numbers do not depend on
+    it. SciPy's is only loaded: a product of it through ``ctypes`` under a tight limit
+    looped in its allocator without end (measured at 425 MB: 10 minutes), worse than the
+    line it would save.
     """
     _reserve_buffers()
 
