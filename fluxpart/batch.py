@@ -400,10 +400,14 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
         # 2, 0 or 1 and refused an existing file as matching nothing. A path that names an
         # existing file is that file (POSIX glob(7): brackets are pattern characters (m))
         if glob.has_magic(pattern) and not full.is_file():
-            _refuse_odd_matches(where, full)
+            # the network file's own folder is a path, not a pattern: a project folder
+            # named "towers [2021]" made every site glob match nothing (io.py escapes the
+            # folder of a site config's input glob so)
+            searched = Path(glob.escape(str(base))) / pattern
+            _refuse_odd_matches(where, searched)
             # the network file is a .toml file too: a glob beside it (*.toml) is not
             # meant to list it as a site
-            matches = sorted(Path(p) for p in glob.glob(str(full), recursive=True)
+            matches = sorted(Path(p) for p in glob.glob(str(searched), recursive=True)
                              if p.endswith(".toml") and Path(p).is_file()
                              and Path(p).resolve() != network and not _is_network_file(p))
             if not matches:

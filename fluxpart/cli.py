@@ -20,7 +20,7 @@ import warnings
 from pathlib import Path
 
 from . import __version__
-from .errors import ConfigError, FluxpartError, FluxpartWarning
+from .errors import ConfigError, FluxpartError, FluxpartWarning, ResourceShortage
 from .manifest import CAUTION
 
 __all__ = ["main"]
@@ -789,6 +789,8 @@ def _too_long(error: OSError) -> str:
 #: The commands that compute a result in this process and write (or compare) its platform
 #: record (batch computes in its workers, whose `process` loads them first).
 _COMPUTING = ("run", "demo", "verify")
+#: commands that read results with NumPy only (fingerprint.reserve_numpy_blas)
+_READING = ("report", "export", "diff")
 
 
 def _tolerate_encoding(stream) -> str | None:
@@ -841,6 +843,10 @@ def main(argv=None) -> int:
             from .fingerprint import load_blas_libraries
 
             load_blas_libraries()
+        elif args.command in _READING:
+            from .fingerprint import reserve_numpy_blas
+
+            reserve_numpy_blas()
         with warnings.catch_warnings():
             # the commands print a result's warnings themselves, once, in their output
             warnings.simplefilter("ignore", FluxpartWarning)
@@ -875,6 +881,12 @@ def main(argv=None) -> int:
         except OSError:
             pass                    # a hung-up terminal takes no more output (EIO)
         return 128 + int(stop.signum)
+    except ResourceShortage as error:
+        # memory or a thread refused while a stored table was read (store.shortage): said
+        # so, not "the file is damaged"
+        print(f"error: {error}; {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the "
+              "process more memory", file=sys.stderr)
+        return 2
     except MemoryError:
         # a memory limit (ulimit -v, a container's or a batch job's) reached inside NumPy or
         # pandas: a traceback ending in _ArrayMemoryError; the write stages are undone on

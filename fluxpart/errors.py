@@ -17,6 +17,7 @@ __all__ = [
     "MissingColumnError",
     "NonMonotonicTimestampError",
     "OutputError",
+    "ResourceShortage",
     "SpacingError",
     "TimestampError",
     "UnitError",
@@ -37,6 +38,14 @@ class InputFileError(FluxpartError):
 
 class OutputError(FluxpartError):
     """The result folder cannot be written: a file, not writable, or locked by another run."""
+
+
+class ResourceShortage(MemoryError):
+    """The system refused memory or a thread while a file was read: no fault of the file.
+
+    A :class:`MemoryError`, not a :class:`FluxpartError`: the command stops with one line
+    naming the limit (``fluxpart.cli``), and no file is judged damaged for it.
+    """
 
 
 class MissingColumnError(FluxpartError):

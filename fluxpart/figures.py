@@ -243,7 +243,18 @@ def _import_matplotlib(*, setter_docs=True):
         from matplotlib import colors, dates, ticker
         from matplotlib.backends.backend_agg import FigureCanvasAgg
         from matplotlib.figure import Figure as MplFigure
-    except ImportError:
+    except ImportError as error:
+        import importlib.util
+
+        if importlib.util.find_spec("matplotlib") is not None:
+            # installed, but a part would not load: under a memory limit (ulimit -v 300
+            # MB) its compiled modules' mapping fails ("failed to map segment from shared
+            # object"), and "not installed, pip install" sent the user to install what was
+            raise FluxpartError(
+                f"matplotlib is installed but could not be loaded ({error}); where a "
+                "memory limit is set (ulimit -v, a container's or a batch job's), give the "
+                "process more memory, else reinstall the report extra: pip install "
+                '--force-reinstall "fluxpart[report]"') from None
         raise FluxpartError(
             "the report needs matplotlib, which is not installed; install the report extra "
             'with: pip install "fluxpart[report]"') from None

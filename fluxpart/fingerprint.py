@@ -24,7 +24,8 @@ import platform
 from functools import lru_cache
 from pathlib import Path
 
-__all__ = ["code_fingerprint", "load_blas_libraries", "platform_differences", "platform_record"]
+__all__ = ["code_fingerprint", "load_blas_libraries", "platform_differences", "platform_record",
+           "reserve_numpy_blas"]
 
 
 @lru_cache(maxsize=1)
@@ -73,6 +74,7 @@ def _cpu_features() -> list[str]:
     return sorted(name for name, present in __cpu_features__.items() if present)
 
 
+@lru_cache(maxsize=1)
 def _load_scipy_blas() -> None:
     """Load the BLAS that ``scipy.linalg`` would load, without importing SciPy (~0.5 s).
 
@@ -97,6 +99,10 @@ def _load_scipy_blas() -> None:
         import scipy.linalg  # noqa: F401
 
 
+_RESERVE_SIDE = 256     # a product of two 256 x 256 matrices: above OpenBLAS's small-matrix
+                        # path (which needs no buffer), a few milliseconds
+
+
 def load_blas_libraries() -> None:
     """Load the BLAS libraries the platform record lists (:func:`platform_record`) now.
 
@@ -106,10 +112,41 @@ def load_blas_libraries() -> None:
     computation, hung there holding its folder's lock (0.5 GB limit: 10 minutes of CPU and
     counting). Called at the start of a computation, when its memory is still free; a
     library loaded once is not loaded again (``dlopen``), so the record is the same.
-    """
-    import numpy  # noqa: F401
 
+    Loading is not all: OpenBLAS maps its work buffers (tens of MB each) at the first
+    matrix product that needs one, and where that fails it prints "Memory allocation still
+    failed after 10 retries, giving up" and ends the process (``exit(1)``), before Python
+    can say why: measured under ``ulimit -v`` from 425 to 700 MB, `run` and `verify` ended
+    so at 7 of 12 limits (NumPy's OpenBLAS, in ``lstsq``), the others with one ``error:``
+    line or a result. One product of NumPy's (:func:`reserve_numpy_blas`), once per
+    process, takes its buffer at the start; OpenBLAS keeps a buffer once mapped and hands
+    it out again, so later products need no new one. A result's numbers do not depend on
+    it. SciPy's is only loaded: a product of it through ``ctypes`` under a tight limit
+    looped in its allocator without end (measured at 425 MB: 10 minutes), worse than the
+    line it would save.
+    """
+    _reserve_buffers()
+
+
+@lru_cache(maxsize=1)
+def _reserve_buffers() -> None:
+    reserve_numpy_blas()
     _load_scipy_blas()
+
+
+@lru_cache(maxsize=1)
+def reserve_numpy_blas() -> None:
+    """Have NumPy's BLAS take its work buffers now, by one matrix product (once).
+
+    For the commands that only read results (`report`, `export`, `diff`): matplotlib's
+    and pandas' products use NumPy's OpenBLAS, which ended `report` under ``ulimit -v``
+    450 MB with "OpenBLAS error: Memory allocation still failed after 10 retries, giving
+    up" (exit 1); see :func:`load_blas_libraries`. SciPy's is not loaded for them.
+    """
+    import numpy as np
+
+    a = np.ones((_RESERVE_SIDE, _RESERVE_SIDE))
+    np.matmul(a, a, out=np.empty_like(a))      # NumPy's OpenBLAS (cblas_dgemm)
 
 
 def _blas_libraries() -> list[dict]:

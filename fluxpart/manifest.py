@@ -517,8 +517,14 @@ def name_in_other_case(directory: Path, name: str) -> str | None:
 def _read_manifest(directory: Path) -> dict:
     path = directory / MANIFEST_FILE
     if not Path(directory).exists():
-        raise InputFileError(f"the result folder {str(directory)!r} does not exist: give the "
-                             "folder that fluxpart run or batch wrote (its --out)")
+        from ._validate import unicode_form_hint
+
+        # a result folder copied through a Mac keeps an accented name decomposed (NFD):
+        # "does not exist" beside a folder that looks the same in every listing
+        other_form = unicode_form_hint(directory)
+        raise InputFileError(f"the result folder {str(directory)!r} does not exist"
+                             + (other_form or ": give the folder that fluxpart run or batch "
+                                "wrote (its --out)"))
     if not Path(directory).is_dir():
         from .store import special_kind
 

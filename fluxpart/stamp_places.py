@@ -832,6 +832,16 @@ def _offset_cell(name: str, value: str) -> tuple[float, bool] | None:
     return (float(number), False) if abs(number) <= 14 else None
 
 
+_FIRST_CELLS = 64
+
+
+def _more_than_two_labels(cells) -> bool:
+    """Whether `cells` hold more than two different non-blank texts (after stripping),
+    as :func:`zone_column_message` counts them."""
+    stripped = pd.Series(cells, dtype=object).astype(str).str.strip()
+    return len(set(stripped[stripped != ""])) > 2
+
+
 def zone_column_message(columns: dict, time_format: str, time_zone: str | None,
                         utc_offset: float | None, source: str) -> str | None:
     """The refusal where a column beside the stamps names their clock, against the settings.
@@ -867,6 +877,12 @@ def zone_column_message(columns: dict, time_format: str, time_zone: str | None,
     if _labelled(time_format) or utc_offset is None:
         return None
     for name, cells in columns.items():
+        # the first cells first: three different labels among them already rule the
+        # column out (any part of it holding three, the whole holds three or more), so a
+        # column of measurements is not turned into Python strings and sorted whole (a
+        # 310 MB file of 85 such columns: 98 s of its 125 s read)
+        if _more_than_two_labels(cells[:_FIRST_CELLS]):
+            continue
         stripped = pd.Series(cells, dtype=object).astype(str).str.strip()
         values = sorted(stripped[stripped != ""].unique())
         if not values or len(values) > 2:

@@ -46,11 +46,11 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from .errors import InputFileError, OutputError
+from .errors import InputFileError, OutputError, ResourceShortage
 
 __all__ = ["PANDAS_ATTRS_KEY", "atomic_write_bytes", "column_units", "file_mode", "file_sha256",
            "folder_mode", "full_disk_remedy", "parquet_source", "read_table", "reader_attrs",
-           "remove_stale", "set_mode", "special_kind", "table_shape", "unreadable",
+           "remove_stale", "set_mode", "shortage", "special_kind", "table_shape", "unreadable",
            "write_table"]
 
 _SCHEMA_KEY = b"fluxpart"
@@ -141,6 +141,75 @@ def set_mode(path, mode: int) -> None:
 
 #: What chmod answers on a file system that keeps no POSIX permission bits.
 _NO_MODE_BITS = {errno.EPERM, errno.ENOTSUP, errno.EOPNOTSUPP, errno.ENOSYS}
+
+
+_THREAD_REFUSED = ("Failed to launch worker thread", "Resource temporarily unavailable",
+                   "Cannot allocate memory")
+
+
+def shortage(path, error: Exception) -> ResourceShortage | None:
+    """The error to raise where pyarrow could not read a file for want of memory or a thread.
+
+    pyarrow reports a refused allocation as ``ArrowMemoryError`` ("malloc of size N
+    failed") and a thread the system would not start (its stack is memory too) as an
+    unknown error ("Failed to launch worker thread: Resource temporarily unavailable",
+    EAGAIN of ``pthread_create(3)`` (m)). Both were reported as "not a readable Parquet
+    file ... the file is damaged": under ``ulimit -v`` 400 MB `verify` said NOT reproduced,
+    15 tables damaged, of a sound result folder.
+
+    Parameters
+    ----------
+    path : path-like
+        The file being read.
+    error : Exception
+        What pyarrow raised.
+
+    Returns
+    -------
+    ResourceShortage or None
+        One line naming the file, what the system refused and the likely limits; None
+        where the error is of another kind (the file itself is at fault).
+
+    References
+    ----------
+    pthread_create(3), EAGAIN: insufficient resources to create another thread, or a
+    limit on threads (Linux man-pages) (m).
+    """
+    text = str(error)
+    if not isinstance(error, MemoryError) and not any(part in text
+                                                      for part in _THREAD_REFUSED):
+        return None
+    what = "a thread" if "thread" in text else "memory"
+    return ResourceShortage(
+        f"the system refused {what} while reading {str(Path(path).name)!r} in "
+        f"{str(Path(path).parent)!r} ({text}): a memory limit of this process (ulimit -v, "
+        "a container's or a batch job's) or a limit on threads (ulimit -u); the file was "
+        "not judged")
+
+
+def damaged_table(path, error: Exception) -> InputFileError:
+    """The error for a result table pyarrow cannot decode: cut short, a byte changed.
+
+    pyarrow's text may span lines (a footer's Thrift that does not decode ends in a line
+    break); it is given on one.
+    """
+    text = " ".join(str(error).split())
+    return InputFileError(f"result table {str(path)!r} is not a readable Parquet file "
+                          f"({text}); the file is damaged: rerun to rewrite the folder")
+
+
+def unreadable_table(path, error: OSError) -> InputFileError:
+    """The error for a result table that raised :class:`OSError` while read.
+
+    pyarrow raises a plain :class:`OSError` without an ``errno`` for a footer that does
+    not decode ("Couldn't deserialize thrift", a byte changed in the footer): that file is
+    damaged, and was named so only with the fix of a permission fault ("make it and its
+    folder readable by this user"), on two lines. A fault of the system (an ``errno``) keeps
+    :func:`unreadable`.
+    """
+    if error.errno is None:
+        return damaged_table(path, error)
+    return unreadable(path, error)
 
 
 def unreadable(path, error: OSError) -> InputFileError:
@@ -494,11 +563,9 @@ def read_table(path) -> pd.DataFrame:
         with parquet_source(path) as source, pq.ParquetFile(source) as file:
             table = file.read()
     except OSError as error:            # no permission, an I/O error
-        raise unreadable(path, error) from None
-    except (pa.ArrowException, ValueError) as error:   # cut short, not Parquet
-        raise InputFileError(f"result table {str(path)!r} is not a readable Parquet file "
-                             f"({error}); the file is damaged: rerun to rewrite the "
-                             "folder") from None
+        raise shortage(path, error) or unreadable_table(path, error) from None
+    except (pa.ArrowException, ValueError, MemoryError) as error:   # cut short, not Parquet
+        raise shortage(path, error) or damaged_table(path, error) from None
     meta = table.schema.metadata or {}
     if _SCHEMA_KEY not in meta:
         raise InputFileError(f"{str(path)!r} is not a table written by fluxpart "
@@ -544,11 +611,9 @@ def table_shape(path) -> tuple[int, list[str]]:
         with parquet_source(path) as source:
             metadata = pq.read_metadata(source)
     except OSError as error:
-        raise unreadable(path, error) from None
-    except (pa.ArrowException, ValueError) as error:
-        raise InputFileError(f"result table {str(path)!r} is not a readable Parquet file "
-                             f"({error}); the file is damaged: rerun to rewrite the "
-                             "folder") from None
+        raise shortage(path, error) or unreadable_table(path, error) from None
+    except (pa.ArrowException, ValueError, MemoryError) as error:
+        raise shortage(path, error) or damaged_table(path, error) from None
     return metadata.num_rows, list(metadata.schema.to_arrow_schema().names)
 
 
