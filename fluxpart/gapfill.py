@@ -984,6 +984,18 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
     passes = pass_sequence(all_drivers=all_conditions is not None,
                            radiation=radiation_conditions is not None,
                            max_window_days=max_window_days, record_days=n / per_day)
+    def take(outputs):
+        """Write each pass's fills into the output columns; return their masks."""
+        written = []
+        for filled, step, half_width_days, pass_mean, pass_count, pass_spread in outputs:
+            value[filled] = pass_mean
+            method[filled] = step
+            window_days[filled] = _full_width_days(step, half_width_days)
+            count[filled] = pass_count
+            spread[filled] = pass_spread
+            written.append(filled)
+        return written
+
     # the diurnal course of a day gap takes night records too (see the module notes)
     course_classes = [False] if is_night is None else [False, True]
     if is_night is not None and sun_up is not None:
@@ -993,12 +1005,7 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
                               min_donors, measured & dark, night_class=True,
                               local_linear=local_linear, radiation_regressors=radiation_regressors,
                               night_regressors=night_regressors)
-        for filled, step, half_width_days, pass_mean, pass_count, pass_spread in outputs:
-            value[filled] = pass_mean
-            method[filled] = step
-            window_days[filled] = _full_width_days(step, half_width_days)
-            count[filled] = pass_count
-            spread[filled] = pass_spread
+        for filled in take(outputs):
             gaps[filled] = False
     for members, course_from_all in zip(classes, course_classes, strict=True):
         donors = measured & members
@@ -1015,12 +1022,7 @@ def _fill_series(values, per_day, diurnal_records, *, all_conditions, radiation_
                               radiation_regressors=radiation_regressors,
                               night_regressors=night_regressors
                               if is_night is not None and not course_from_all else ())
-        for filled, step, half_width_days, pass_mean, pass_count, pass_spread in outputs:
-            value[filled] = pass_mean
-            method[filled] = step
-            window_days[filled] = _full_width_days(step, half_width_days)
-            count[filled] = pass_count
-            spread[filled] = pass_spread
+        take(outputs)
     return value, method, window_days, count, spread
 
 
