@@ -32,6 +32,17 @@ _FIXED_USTAR = ('; to filter every year at one u* threshold write ustar_method =
                 "under the thresholds detected from the data)")
 
 
+#: Words of the other u* settings named "min" (review38): ``min_ustar_resolution``,
+#: ``ustar_min_points`` are no floor under the thresholds; their spelling hint is kept.
+_OTHER_USTAR_MINIMA = {"resolution", "res", "step", "class", "classes", "points", "count",
+                       "season", "seasons", "draws", "samples", "share", "records"}
+#: Words of the Rg settings other than the night threshold (review38):
+#: ``gapfill_rg_threshold``, ``random_error_rg_threshold`` mean the similarity tolerance
+#: of a gap's donors, not night; their spelling hint is kept.
+_OTHER_RG_LIMITS = {"gap", "gapfill", "gapfilling", "fill", "filling", "mds", "donor",
+                    "donors", "random", "error", "similar", "similarity", "tolerance"}
+
+
 def _words(key: str) -> set:
     return {w for w in re.split(r"[^a-z0-9*]+", key.lower().replace("u*", "ustar")) if w}
 
@@ -69,7 +80,8 @@ def meaning_hint(key: str) -> str | None:
     threshold = bool(words & {"threshold", "thresh", "thr", "limit", "value", "cutoff"})
     if "fixed" in words and (ustar or threshold):
         return _FIXED_USTAR
-    if ustar and words & {"floor", "minimum", "min", "lowest", "lower"}:
+    if (ustar and words & {"floor", "minimum", "min", "lowest", "lower"}
+            and not words & _OTHER_USTAR_MINIMA):
         return "; did you mean 'ustar_min_threshold' (a floor under the detected u* thresholds, m s-1)?"
     if words & {"seed", "seeds", "rng"}:
         return "; did you mean 'seed' (the seed of every random draw)?"
@@ -80,11 +92,23 @@ def meaning_hint(key: str) -> str | None:
             return "; did you mean 'ustar_bootstrap_draws' (draws of the u* threshold)?"
         return "; did you mean 'random_error_draws' (draws of the random-error interval)?"
     if "window" in words and words & {"gap", "gapfill", "gapfilling", "fill", "filling", "mds"}:
+        if words & {"rg", "radiation"}:
+            return ("; did you mean 'gapfill_rg_window' (where a gap's Rg window lies, "
+                    "e.g. \"centred\")?")
         return ("; did you mean 'gapfill_max_window_days' (the widest window in which the "
                 "gap filling looks for similar records)?")
-    if (words & {"night", "dark"} or "rg" in words or "radiation" in words) and threshold:
+    if (("rg" in words or "radiation" in words) and words & _OTHER_RG_LIMITS
+            and (threshold or words & {"tolerance", "window", "margin"})
+            and not words & {"night", "dark", "random", "error"}):
+        return ("; did you mean 'rg_tolerance' (how far a donor's Rg may lie from the gap's "
+                "in the gap filling, W m-2)?")
+    if ((words & {"night", "dark"} or ("rg" in words or "radiation" in words)
+            and not words & _OTHER_RG_LIMITS) and threshold):
         return "; did you mean 'night_rg_threshold' (night is Rg below it, W m-2)?"
     if words & {"spike", "spikes", "despike", "despiking", "outlier", "outliers"}:
+        if words & {"block", "blocks", "days", "day", "window", "period", "length"}:
+            return ("; did you mean 'despike_block_days' (the length of the blocks in which "
+                    "spikes are judged, days)?")
         return "; did you mean 'despike_z' (the despiking limit in robust standard deviations)?"
     if words & {"partition", "partitioning", "partitions"}:
         return ("; both partitionings always run (the nighttime and daytime columns side by "
