@@ -43,6 +43,10 @@ _OTHER_RG_LIMITS = {"gap", "gapfill", "gapfilling", "fill", "filling", "mds", "d
                     "donors", "random", "error", "similar", "similarity", "tolerance"}
 
 
+#: Words of a setting for some columns only (review38)
+_EACH = {"by", "per", "each", "variable", "variables", "column", "columns", "var", "vars"}
+
+
 def _words(key: str) -> set:
     return {w for w in re.split(r"[^a-z0-9*]+", key.lower().replace("u*", "ustar")) if w}
 
@@ -138,8 +142,10 @@ def table_meaning_hint(key: str, table: str, valid) -> str | None:
         A text starting ``"; "``: under ``[site]`` a time zone's name or offset
         (``utc_offset`` in hours, a named zone being ``[input] time_zone``) or a
         vegetation class (``canopy``); under ``[input]`` the missing-value codes
-        (``missing``), the stamp's place in its interval (``time_marks``) or the stamp
-        column (``time_column``). None where no rule applies.
+        (``missing``, or ``[input.missing_by_variable]`` for codes of some columns),
+        the stamp's place in its interval (``time_marks``), its zone (``time_zone``),
+        the records' interval (``interval_minutes``) or the stamp column
+        (``time_column``). None where no rule applies.
 
     Notes
     -----
@@ -172,9 +178,22 @@ def table_meaning_hint(key: str, table: str, valid) -> str | None:
             return None
         if words & {"na", "nan", "nodata", "null", "fill", "missing", "missings",
                     "nodatavalue"}:
+            if words & _EACH:
+                # codes of some columns only (review38: "missing_per_column" was sent to
+                # the codes of every column, where 0 also blanks readings of 0)
+                return ("; did you mean [input.missing_by_variable] (the codes of some "
+                        "variables only, e.g. nee = [0])?")
             return "; did you mean 'missing' (the codes written for a missing value, e.g. [-9999])?"
+        stamp = bool(words & {"timestamp", "timestamps", "stamp", "stamps", "time", "date",
+                              "datetime"})
+        if words & {"zone", "timezone", "tz"}:
+            return ("; did you mean 'time_zone' (the stamps' zone, e.g. \"Europe/Berlin\"; "
+                    "a fixed offset is [site] utc_offset)?")
+        if words & {"interval", "step", "timestep", "frequency"}:
+            return "; did you mean 'interval_minutes' (the records' interval, 30 or 60)?"
         if words & {"position", "positions", "marks", "mark", "label", "convention",
-                    "anchor", "alignment"}:
+                    "anchor", "alignment"} or (
+                stamp and words & {"start", "end", "begin", "beginning", "refers"}):
             return ("; did you mean 'time_marks' (\"start\" or \"end\": which end of its "
                     "interval a stamp marks)?")
         if words & {"timestamp", "timestamps", "datetime", "date", "stamps"}:

@@ -157,3 +157,40 @@ def test_gap_filling_rg_keys_are_not_the_night_threshold(key, meant):
 def test_the_meanings_that_were_right_stay(key, meant):
     """The mistakes33 answers these changes leave as they were."""
     assert f"'{meant}'" in _hint(key)
+
+
+@pytest.mark.parametrize(("key", "meant"), [
+    ("missing_per_column", "[input.missing_by_variable]"),
+    ("nodata_by_column", "[input.missing_by_variable]"),
+    ("missing_values_by_variable", "[input.missing_by_variable]"),
+    ("timestamp_end", "'time_marks'"),
+    ("timestamp_refers_to", "'time_marks'"),
+    ("timestamp_timezone", "'time_zone'"),
+    ("timestamp_interval", "'interval_minutes'"),
+])
+def test_input_keys_named_by_what_they_mean(key, meant):
+    """Before: codes per column were sent to [input] missing, whose codes blank every
+    column (0 there also blanks Rg at night and VPD at saturation, a fact of the trade);
+    a stamp's end, zone or interval were sent to time_column. Each is the setting its
+    words name."""
+    from fluxpart.io import _INPUT_KEYS
+    from fluxpart.key_hints import table_meaning_hint
+
+    hint = table_meaning_hint(key, "input", _INPUT_KEYS)
+    assert meant in hint
+    if "by_variable" in meant:
+        assert "'missing'" not in hint
+    else:
+        assert "time_column" not in hint
+
+
+@pytest.mark.parametrize(("key", "meant"), [
+    ("na_values", "'missing'"), ("timestamp", "'time_column'"),
+    ("timestamp_position", "'time_marks'"),
+])
+def test_the_input_meanings_that_were_right_stay(key, meant):
+    """The mistakes33 answers these changes leave as they were."""
+    from fluxpart.io import _INPUT_KEYS
+    from fluxpart.key_hints import table_meaning_hint
+
+    assert meant in table_meaning_hint(key, "input", _INPUT_KEYS)
