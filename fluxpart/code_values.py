@@ -122,7 +122,15 @@ def ordinary_code_message(name: str, column: str, code: float, values, night=Non
         if cells < BOUND_MIN_SHARE * count:
             return None
         return _bound_reading(name, column, code, values, present, is_code, others, source)
+    # a code inside the values of a quantity held at it for days (soil at 0 degC through a
+    # thaw) is too rare for the share below, or too frequent beside its neighbours, and was
+    # blanked without a word: the neighbours in time tell it too (review38)
+    held = (name not in ("rg", "ppfd", "nee") and others.size
+            and cells >= BOUND_MIN_SHARE * count)
     if cells < MIN_SHARE * count:
+        if held:
+            return _bound_reading(name, column, code, values, present, is_code, others,
+                                  source, at_bound=False)
         return None
     if name in ("rg", "ppfd"):
         if night is None or abs(code) > RG_NIGHT_CODE:
@@ -139,7 +147,9 @@ def ordinary_code_message(name: str, column: str, code: float, values, night=Non
         step = float(distance.min())
         beside = int(np.count_nonzero(distance <= step * (1 + 1e-9)))
         if cells > SPIKE_RATIO * max(beside / 2.0, 1.0):
-            return None             # far more frequent than its neighbours: a code
+            # far more frequent than its neighbours: a code, unless held at it in time
+            return _bound_reading(name, column, code, values, present, is_code, others,
+                                  source, at_bound=False)
         why = (f"about as often as the values {step:.3g} beside it ({beside} cells), as a "
                f"measured value is, among values from {others.min():g} to {others.max():g}")
     return _message(name, column, code, cells, count, why, source)
@@ -160,7 +170,7 @@ def _message(name, column, code, cells, count, why, source) -> str:
 
 
 def _bound_reading(name, column, code, values, present, is_code, others,
-                   source) -> str | None:
+                   source, at_bound=True) -> str | None:
     """A code at or beyond the bound of a column's values that the column reaches as a
     reading: VPD written 0 at saturation (a logger computing VPD from an RH clamped at
     100 %, or rounding), u* 0 on a calm night.
@@ -174,6 +184,11 @@ def _bound_reading(name, column, code, values, present, is_code, others,
     the median distance of its cells' neighbours (the records just before and after, in
     file order, holding another value) is below :data:`BOUND_NEAR` of the column's median
     distance from it.
+
+    With ``at_bound`` False (review38) the same test judges a code inside the column's
+    values that the frequency rule calls a code or leaves unjudged: a quantity held at it
+    for days (soil at 0 degC through a thaw, the latent heat of freezing holding it there,
+    Outcalt et al. 1990, "zero curtain" (m)) has neighbours within a step of it.
 
     Returns
     -------
@@ -190,9 +205,13 @@ def _bound_reading(name, column, code, values, present, is_code, others,
     spread = float(np.median(np.abs(others - code)))
     if not spread > 0.0 or near >= BOUND_NEAR * spread:
         return None
-    why = (f"at the bound of its values (the others from {others.min():g} to "
+    if at_bound:
+        place, example = "at the bound of its values", "VPD at saturation"
+    else:
+        place, example = "among its values", "soil at 0 degC through a thaw"
+    why = (f"{place} (the others from {others.min():g} to "
            f"{others.max():g}), and the records beside them in time lie a median {near:.3g} "
            f"from it where the column lies a median {spread:.3g} from it: a quantity "
-           f"reaching {code:g} as a reading (VPD at saturation), not an outage, whose "
+           f"reaching {code:g} as a reading ({example}), not an outage, whose "
            "neighbours lie anywhere")
     return _message(name, column, code, int(is_code.sum()), int(present.sum()), why, source)

@@ -32,6 +32,21 @@ _FIXED_USTAR = ('; to filter every year at one u* threshold write ustar_method =
                 "under the thresholds detected from the data)")
 
 
+#: Words of the other u* settings named "min" (review38): ``min_ustar_resolution``,
+#: ``ustar_min_points`` are no floor under the thresholds; their spelling hint is kept.
+_OTHER_USTAR_MINIMA = {"resolution", "res", "step", "class", "classes", "points", "count",
+                       "season", "seasons", "draws", "samples", "share", "records"}
+#: Words of the Rg settings other than the night threshold (review38):
+#: ``gapfill_rg_threshold``, ``random_error_rg_threshold`` mean the similarity tolerance
+#: of a gap's donors, not night; their spelling hint is kept.
+_OTHER_RG_LIMITS = {"gap", "gapfill", "gapfilling", "fill", "filling", "mds", "donor",
+                    "donors", "random", "error", "similar", "similarity", "tolerance"}
+
+
+#: Words of a setting for some columns only (review38)
+_EACH = {"by", "per", "each", "variable", "variables", "column", "columns", "var", "vars"}
+
+
 def _words(key: str) -> set:
     return {w for w in re.split(r"[^a-z0-9*]+", key.lower().replace("u*", "ustar")) if w}
 
@@ -69,7 +84,8 @@ def meaning_hint(key: str) -> str | None:
     threshold = bool(words & {"threshold", "thresh", "thr", "limit", "value", "cutoff"})
     if "fixed" in words and (ustar or threshold):
         return _FIXED_USTAR
-    if ustar and words & {"floor", "minimum", "min", "lowest", "lower"}:
+    if (ustar and words & {"floor", "minimum", "min", "lowest", "lower"}
+            and not words & _OTHER_USTAR_MINIMA):
         return "; did you mean 'ustar_min_threshold' (a floor under the detected u* thresholds, m s-1)?"
     if words & {"seed", "seeds", "rng"}:
         return "; did you mean 'seed' (the seed of every random draw)?"
@@ -80,11 +96,23 @@ def meaning_hint(key: str) -> str | None:
             return "; did you mean 'ustar_bootstrap_draws' (draws of the u* threshold)?"
         return "; did you mean 'random_error_draws' (draws of the random-error interval)?"
     if "window" in words and words & {"gap", "gapfill", "gapfilling", "fill", "filling", "mds"}:
+        if words & {"rg", "radiation"}:
+            return ("; did you mean 'gapfill_rg_window' (where a gap's Rg window lies, "
+                    "e.g. \"centred\")?")
         return ("; did you mean 'gapfill_max_window_days' (the widest window in which the "
                 "gap filling looks for similar records)?")
-    if (words & {"night", "dark"} or "rg" in words or "radiation" in words) and threshold:
+    if (("rg" in words or "radiation" in words) and words & _OTHER_RG_LIMITS
+            and (threshold or words & {"tolerance", "window", "margin"})
+            and not words & {"night", "dark", "random", "error"}):
+        return ("; did you mean 'rg_tolerance' (how far a donor's Rg may lie from the gap's "
+                "in the gap filling, W m-2)?")
+    if ((words & {"night", "dark"} or ("rg" in words or "radiation" in words)
+            and not words & _OTHER_RG_LIMITS) and threshold):
         return "; did you mean 'night_rg_threshold' (night is Rg below it, W m-2)?"
     if words & {"spike", "spikes", "despike", "despiking", "outlier", "outliers"}:
+        if words & {"block", "blocks", "days", "day", "window", "period", "length"}:
+            return ("; did you mean 'despike_block_days' (the length of the blocks in which "
+                    "spikes are judged, days)?")
         return "; did you mean 'despike_z' (the despiking limit in robust standard deviations)?"
     if words & {"partition", "partitioning", "partitions"}:
         return ("; both partitionings always run (the nighttime and daytime columns side by "
@@ -114,8 +142,10 @@ def table_meaning_hint(key: str, table: str, valid) -> str | None:
         A text starting ``"; "``: under ``[site]`` a time zone's name or offset
         (``utc_offset`` in hours, a named zone being ``[input] time_zone``) or a
         vegetation class (``canopy``); under ``[input]`` the missing-value codes
-        (``missing``), the stamp's place in its interval (``time_marks``) or the stamp
-        column (``time_column``). None where no rule applies.
+        (``missing``, or ``[input.missing_by_variable]`` for codes of some columns),
+        the stamp's place in its interval (``time_marks``), its zone (``time_zone``),
+        the records' interval (``interval_minutes``) or the stamp column
+        (``time_column``). None where no rule applies.
 
     Notes
     -----
@@ -148,9 +178,22 @@ def table_meaning_hint(key: str, table: str, valid) -> str | None:
             return None
         if words & {"na", "nan", "nodata", "null", "fill", "missing", "missings",
                     "nodatavalue"}:
+            if words & _EACH:
+                # codes of some columns only (review38: "missing_per_column" was sent to
+                # the codes of every column, where 0 also blanks readings of 0)
+                return ("; did you mean [input.missing_by_variable] (the codes of some "
+                        "variables only, e.g. nee = [0])?")
             return "; did you mean 'missing' (the codes written for a missing value, e.g. [-9999])?"
+        stamp = bool(words & {"timestamp", "timestamps", "stamp", "stamps", "time", "date",
+                              "datetime"})
+        if words & {"zone", "timezone", "tz"}:
+            return ("; did you mean 'time_zone' (the stamps' zone, e.g. \"Europe/Berlin\"; "
+                    "a fixed offset is [site] utc_offset)?")
+        if words & {"interval", "step", "timestep", "frequency"}:
+            return "; did you mean 'interval_minutes' (the records' interval, 30 or 60)?"
         if words & {"position", "positions", "marks", "mark", "label", "convention",
-                    "anchor", "alignment"}:
+                    "anchor", "alignment"} or (
+                stamp and words & {"start", "end", "begin", "beginning", "refers"}):
             return ("; did you mean 'time_marks' (\"start\" or \"end\": which end of its "
                     "interval a stamp marks)?")
         if words & {"timestamp", "timestamps", "datetime", "date", "stamps"}:
