@@ -73,6 +73,7 @@ from .errors import (
     UnitError,
 )
 from .key_hints import table_meaning_hint
+from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .site import Site
 from .stamp_places import (
     half_interval_message,
@@ -950,6 +951,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     refusals, suspicions = mixup_messages(converted, units, mapping, interval_minutes, potential,
                                           missing, starts)
     warnings.extend(suspicions)
+    written_limit = _written_limit(converted, [refusals.get("nee") or "", *suspicions])
     if any(_CHANGED_WITHIN in w for w in suspicions):
         # months that look like another unit or sign: where they are a file of their own,
         # that file alone is judged as a one-file record would be
@@ -1113,6 +1115,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         accepted_units=tuple(sorted(set(name for name in accepted if name))),
         unit_refusals=tuple(preflight or ()),
     )
+    if written_limit is not None:
+        # the preflight's cut rule leaves this end of NEE to the reader's message
+        frame.attrs["nee_written_limit"] = written_limit
     if accept_units:
         # read_config -> process: process checks a caller's frame's units again, but not
         # those the site config accepted as they are
@@ -1883,6 +1888,18 @@ def _unit_changed_within(name: str, message: str, values, converted: dict, units
             f"program or export changed), which one [input.units] setting cannot read; "
             f"convert column {mapping[name]!r} of one part in a copy of its file(s) (or list "
             f"{name} in [input] accept_units)")
+
+
+def _written_limit(converted: dict, texts: list) -> float | None:
+    """The NEE value the reader named as values written as a limit (round mistakes34:
+    :func:`fluxpart.nee_limits.written_as_limit`), or None: the most repeated non-zero
+    value, the one its missing-code rule judged."""
+    nee = converted.get("nee")
+    if nee is None or not any(_WRITTEN_WORDS in text for text in texts):
+        return None
+    present = nee[np.isfinite(nee)]
+    code, _ = most_repeated(present[present != 0.0])
+    return float(code)
 
 
 def _refuse_or_warn(name: str, message: str, accept_units: tuple, warnings: list,

@@ -34,10 +34,23 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["BAND", "BEYOND_SHARE", "FAR", "SEASON_MONTHS", "STAGE", "cut_nee"]
+__all__ = ["BAND", "BEYOND_SHARE", "FAR", "SEASON_MONTHS", "STAGE", "WRITTEN_WORDS", "cut_nee",
+           "written_as_limit"]
 
 #: Preflight stage of the warning.
 STAGE = "input (nee cut)"
+#: Words of the reader's message on a value repeated at an end of NEE
+#: (:func:`fluxpart.unit_checks` missing-code rule, :func:`written_as_limit`).
+WRITTEN_WORDS = "values beyond a limit were written as the limit"
+#: Fewest values other than the level itself the band inside it must hold before a
+#: value repeated at an end of the values is read as a limit written (our choice: a
+#: handful, so that a code standing apart from the values is not taken for one).
+_MIN_RUN_ON = 5
+#: Smallest share of the band next in that the band inside the level must hold (our
+#: choice: a quarter, what a tail falling as e^(-x/0.36) loses over one band; a half, the
+#: cut rule's, left 9 of 40 generated years written as the limit at their 98th
+#: percentile called a missing code).
+_RUN_ON_SHARE = 0.25
 #: Width of the bands compared on either side of a level [µmol m-2 s-1]: of the order of
 #: the smallest random error of a flux record (a Laplace scale of tenths of a µmol m-2
 #: s-1 at fluxes near 0, more at larger fluxes: Richardson et al. 2006 (m)). Over one
@@ -168,9 +181,55 @@ def _side(values: np.ndarray, upper: bool, band: float = BAND, far_width: float 
     return None
 
 
-def _edges(values: np.ndarray) -> list:
+def written_as_limit(values, level: float) -> bool:
+    """Whether `level`, a value repeated far beyond chance, is a limit the values were
+    written as: an end of the values that they run on up to.
+
+    Parameters
+    ----------
+    values : array_like
+        Present NEE values [µmol m-2 s-1].
+    level : float
+        The repeated value [µmol m-2 s-1].
+
+    Returns
+    -------
+    bool
+        True where no value lies beyond `level` and the values other than it within
+        :data:`BAND` inside it are at least :data:`_MIN_RUN_ON` and at least
+        :data:`_RUN_ON_SHARE` (a quarter) of those in the band next in.
+
+    Notes
+    -----
+    A measured flux's random error (Laplace, scale tenths of a µmol m-2 s-1;
+    Richardson et al. 2006 (m)) spreads its values over any level the true flux
+    reaches, so an end of the values that they still crowd up to is a cut
+    (:func:`cut_nee`); where the records beyond were written as the level rather than
+    removed, the level also repeats far beyond chance. A missing-value code standing
+    apart from the values has no values running on up to it.
+
+    References
+    ----------
+    Richardson, A. D. et al. (2006). Agricultural and Forest Meteorology 136:1-18 (m).
+    """
+    values = np.asarray(values, dtype=float)
+    values = values[np.isfinite(values)]
+    if not values.size or not np.isfinite(level):
+        return False
+    upper = bool(level >= np.max(values))
+    if not upper and level > np.min(values):
+        return False             # values lie on both sides: not an end
+    others = values[values != level]
+    distance = level - others if upper else others - level
+    inside = int(np.count_nonzero(distance <= BAND))
+    next_in = int(np.count_nonzero((distance > BAND) & (distance <= 2 * BAND)))
+    return inside >= _MIN_RUN_ON and inside >= _RUN_ON_SHARE * next_in
+
+
+def _edges(values: np.ndarray, written=None) -> list:
     """The texts of the cut sides of sorted present values (empty where none or where
-    the values are too few or too coarse to judge)."""
+    the values are too few or too coarse to judge); a side ending at `written` (a
+    limit the reader names as written, :func:`written_as_limit`) is left to it."""
     resolution = _resolution(values)
     if values.size < _MIN_INSIDE_LARGE or resolution > _COARSEST:
         return []
@@ -181,6 +240,8 @@ def _edges(values: np.ndarray) -> list:
         if side is None:
             continue
         level, inside, beyond, width = side
+        if written is not None and np.isclose(level, written, rtol=0.0, atol=1e-9):
+            continue
         share = float(np.mean(values > level) if upper else np.mean(values < level))
         found.append(
             f"{'above' if upper else 'below'} {level:.4g} ({inside} values within "
@@ -190,7 +251,7 @@ def _edges(values: np.ndarray) -> list:
     return found
 
 
-def cut_nee(nee, stamps=None, columns=None) -> str | None:
+def cut_nee(nee, stamps=None, columns=None, written=None) -> str | None:
     """A message where the measured NEE ends at a level no random error allows, or None.
 
     Parameters
@@ -204,6 +265,9 @@ def cut_nee(nee, stamps=None, columns=None) -> str | None:
         applied to the growing season only, or changed within the record).
     columns : dict, optional
         Canonical name -> file column, to name the column in the message.
+    written : float, optional
+        A level the reader already named as values written as the limit
+        (:func:`written_as_limit`); a side ending there is not named twice.
 
     Returns
     -------
@@ -239,13 +303,13 @@ def cut_nee(nee, stamps=None, columns=None) -> str | None:
     """
     values = np.asarray(nee, dtype=float)
     present = np.isfinite(values)
-    found, where = _edges(np.sort(values[present])), ""
+    found, where = _edges(np.sort(values[present]), written), ""
     if not found and stamps is not None and len(stamps) == values.size:
         index = pd.DatetimeIndex(stamps)
         months = index.year.to_numpy() * 12 + index.month.to_numpy() - 1
         for first in np.unique(months[present]):
             chosen = present & (months >= first) & (months < first + SEASON_MONTHS)
-            found = _edges(np.sort(values[chosen]))
+            found = _edges(np.sort(values[chosen]), written)
             if found:
                 last = int(months[chosen].max())
                 where = (f" in {first // 12:04d}-{first % 12 + 1:02d} .. "

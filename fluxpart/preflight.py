@@ -387,7 +387,7 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
 
 
 def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
-                   sources=None, is_night=None) -> list:
+                   sources=None, is_night=None, written=None) -> list:
     """Air and soil temperature swapped, NEE shifted against Rg or of the opposite sign in
     some months or weeks or interpolated over its gaps or with one sign removed next to
     0, air temperature shifted against RH and VPD (:mod:`.column_faults`)."""
@@ -480,7 +480,7 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
             findings.append(Finding("input (nee filled)", text, False))
         # values beyond a plausibility limit removed (round mistakes32)
         text = nee_limits.cut_nee(screened["nee"].to_numpy(dtype=float), screened.index,
-                                    names)
+                                    names, written)
         if text:
             findings.append(Finding(nee_limits.STAGE, text, False))
         if is_night is not None:
@@ -1357,7 +1357,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
                     or _repeated_nee_any_lag(frame, interval_minutes))
         findings += repeated or _repeated_drivers(frame, interval_minutes, sources)
         findings += _column_faults(screened, potential, interval_minutes, sources,
-                                   is_night)
+                                   is_night, frame.attrs.get("nee_written_limit"))
         findings += _gapless(frame, interval_minutes, sources)
     if (temperature_name in frame.columns
             and not np.isfinite(frame[temperature_name].to_numpy(dtype=float)).any()):

@@ -29,6 +29,7 @@ import re
 
 import numpy as np
 
+from . import nee_limits
 from .constants import CARBON_MOLAR_MASS
 from .nee_smoothing import (
     _MIN_PAIRS,
@@ -563,6 +564,22 @@ def _nonzero_code_message(converted: dict, units: dict, columns: dict,
              f"({count / present.size:.1%} of the present values), against {beside} at "
              f"±{step:.3g}, the file's resolution, beside it; a flux does not repeat one "
              "value that often")
+    side = "below" if code <= float(np.min(present)) else "above"
+    if nee_limits.written_as_limit(present, code):
+        # an end of the values that they run on up to: a clip (round mistakes34), one
+        # message here; the preflight's cut rule leaves this side to it
+        repeated = found.replace("; a flux does not repeat one value that often", "")
+        clip = (f"column {columns['nee']!r} (nee): {repeated}, and no value lies {side} it "
+                f"while the values run on up to it: {nee_limits.WRITTEN_WORDS} (a "
+                "plausibility window of a logger or processing program), so these records "
+                "hold the limit, not the flux")
+        advice = ("; restore the values as measured; to run on, add it to [input] missing "
+                  f"(now {list(missing)}; its records are then gap-filled from the smaller "
+                  "fluxes kept, which moves the budget), or list nee in [input] "
+                  "accept_units to keep the values as written")
+        if _enough_days(present.size, interval_minutes):
+            return clip + advice, None
+        return None, "nee: " + clip.split(": ", 1)[1] + advice
     if _enough_days(present.size, interval_minutes):
         return (f"column {columns['nee']!r} (nee): {found}: it looks like the logger's code "
                 f"for a missing value: add it to [input] missing (now {list(missing)}), or "

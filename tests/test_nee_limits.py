@@ -1,13 +1,26 @@
 """NEE whose values beyond a limit were removed (round mistakes32, `fluxpart.nee_limits`)."""
 import re
+import subprocess
+import sys
 import warnings
+from pathlib import Path
 
 import numpy as np
+import pandas as pd
 import pytest
 from scipy import integrate, stats
 
 from fluxpart import Config, demo
-from fluxpart.nee_limits import BAND, BEYOND_SHARE, FAR, STAGE, cut_nee
+from fluxpart.io import read_config
+from fluxpart.nee_limits import (
+    BAND,
+    BEYOND_SHARE,
+    FAR,
+    STAGE,
+    WRITTEN_WORDS,
+    cut_nee,
+    written_as_limit,
+)
 from fluxpart.pipeline import check_record
 
 
@@ -123,3 +136,71 @@ def test_a_crop_whose_uptake_sweeps_through_large_fluxes_is_judged_over_two_umol
             assert text is not None
             found = float(re.search(r"ends abruptly below (-[0-9.]+) ", text)[1])
             assert abs(found - level) < 0.05
+
+
+def test_a_value_repeated_at_an_end_the_values_run_up_to_is_a_limit_written(demo_nee):
+    """Known-truth recovery on invented data (round mistakes34): the demo's NEE written
+    as -15 below -15 (or as +5 above +5) repeats the level at an end of the values
+    that they crowd up to, which a measured flux's Laplace random error does not allow
+    (Richardson et al. 2006 (m)); a missing code standing apart from the values (-45,
+    beyond every flux of the demo) or inside them (-9.99, uptake reaches beyond it) is
+    no limit."""
+    nee = demo_nee["nee"].to_numpy(dtype=float)
+    present = nee[np.isfinite(nee)]
+    assert written_as_limit(np.clip(present, -15.0, None), -15.0)
+    assert written_as_limit(np.clip(present, None, 5.0), 5.0)
+    gaps = ~np.isfinite(nee)
+    assert not written_as_limit(np.where(gaps, -45.0, nee), -45.0)
+    assert not written_as_limit(np.where(gaps, -9.99, nee), -9.99)
+
+
+def _clipped_grassland(tmp_path, low, high, accept=False):
+    """The grassland example's NEE written as the limit beyond `low` or `high` (the
+    file's -9999 codes kept), its config beside it."""
+    examples = Path(__file__).resolve().parents[1] / "examples"
+    table = pd.read_csv(examples / "quillmoor_grassland.csv", dtype={"stamp_end": str})
+    values = table["co2_exchange"]
+    measured = values != -9999
+    table.loc[measured, "co2_exchange"] = values[measured].clip(low, high)
+    table.to_csv(tmp_path / "clipped.csv", index=False)
+    text = (examples / "quillmoor_grassland.toml").read_text().replace(
+        "quillmoor_grassland.csv", "clipped.csv")
+    if accept:
+        text = text.replace("missing = [-9999]", 'missing = [-9999]\naccept_units = ["nee"]')
+    (tmp_path / "clipped.toml").write_text(text)
+    return tmp_path / "clipped.toml"
+
+
+@pytest.mark.parametrize("low, high, side", [(-15.0, None, "below"), (None, 5.0, "above")])
+def test_nee_written_as_a_limit_is_named_once_as_the_limit(tmp_path, low, high, side):
+    """`check` on the grassland example with NEE written as the limit (invented site):
+    one problem naming the values written as the limit (the reader's refusal, which
+    before called the level a missing code, with the preflight's cut warning beside
+    it); listed under accept_units, one warning naming the limit and no cut warning."""
+    config = _clipped_grassland(tmp_path, low, high)
+    done = subprocess.run([sys.executable, "-m", "fluxpart", "check", str(config)],
+                          capture_output=True, text=True, env=_env())
+    out = done.stdout
+    assert "problems found (1)" in out
+    assert WRITTEN_WORDS in out and f"no value lies {side} it" in out
+    assert STAGE not in out and "code for a missing value" not in out
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        frame, site = read_config(_clipped_grassland(tmp_path, low, high, accept=True))
+        _, findings = check_record(frame, site, Config())
+    assert frame.attrs["nee_written_limit"] == (low if high is None else high)
+    assert not [f for f in findings if f.stage == STAGE]
+    # the same values removed instead of written as the limit: the cut rule names them
+    removed = frame.assign(nee=frame["nee"].where(frame["nee"] != frame.attrs[
+        "nee_written_limit"]))
+    removed.attrs = {}
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        _, findings = check_record(removed, site, Config())
+    assert len([f for f in findings if f.stage == STAGE]) == 1
+
+
+def _env():
+    import os
+    return {**os.environ, "PYTHONPATH": str(Path(__file__).resolve().parents[1]),
+            "OMP_NUM_THREADS": "1"}
