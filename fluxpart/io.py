@@ -999,6 +999,14 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         from .column_faults import storage_in_turbulent_flux  # only where storage is mapped
 
         counted_twice = storage_in_turbulent_flux(turbulent, storage, starts, columns=mapping)
+        # a storage column in another unit, too large for a short canopy (mistakes34):
+        # named before the slope's causes, after a level (a running sum swings too)
+        from .storage_size import LEVEL_WORDS, oversized_storage
+
+        if not (counted_twice and LEVEL_WORDS in counted_twice):
+            counted_twice = oversized_storage(storage, starts, interval_minutes,
+                                              getattr(site, "canopy", None),
+                                              mapping) or counted_twice
         if counted_twice:
             warnings.append(f"storage: {counted_twice}")
         if storage_missing:
