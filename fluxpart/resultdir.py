@@ -467,6 +467,10 @@ def other_site_reason(directory, site_name) -> str | None:
             "folder first if it is the same site renamed")
 
 
+#: a file where a result folder is to be written (:func:`replace_refusal`)
+_A_FILE = "exists and is not a folder (an existing file)"
+
+
 def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
                     kind: str = "a fluxpart result folder") -> str | None:
     """Why the folder `directory` must not be replaced whole, or None when it may be.
@@ -499,7 +503,7 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     if not directory.exists():
         return None
     if not directory.is_dir():
-        return "exists and is not a folder (an existing file)"
+        return _A_FILE
     if os.path.ismount(directory):
         return _MOUNT_POINT.format(inside=str(directory / "result"))
     try:
@@ -751,6 +755,11 @@ def _refusal(directory: Path, reason: str) -> OutputError:
     """The error refusing to replace `directory`, its fix named once (another site's
     result names its own)."""
     fix = "" if "choose another --out" in reason else "; choose another --out"
+    if reason == _A_FILE:
+        # a batch's site folder (``--out``/<site>) replaced by a file: another --out moves
+        # every site; the file in the way is what to remove
+        fix = ("; move or delete that file (fluxpart writes a result folder of that name), "
+               "or choose another --out")
     return OutputError(f"output folder {str(directory)!r} {reason}{fix}")
 
 

@@ -559,9 +559,15 @@ def read_table(path) -> pd.DataFrame:
         raise InputFileError(f"result table {str(path)!r} does not exist")
     try:
         # one file: ParquetFile reads it without pyarrow's dataset layer (half the time of
-        # pq.read_table for the small tables of a result folder, no pyarrow.dataset import)
+        # pq.read_table for the small tables of a result folder, no pyarrow.dataset import).
+        # On this thread (use_threads=False), and so the conversion below: a refused
+        # allocation (std::bad_alloc) in one of pyarrow's worker threads ends the process
+        # (std::terminate, exit 134, no error line: `verify` under ulimit -v 400, 475 and
+        # 525 MB), in the calling thread pyarrow raises it as MemoryError; a thread the
+        # system refuses cannot occur. The tables of a result folder are small, the time
+        # the same.
         with parquet_source(path) as source, pq.ParquetFile(source) as file:
-            table = file.read()
+            table = file.read(use_threads=False)
     except OSError as error:            # no permission, an I/O error
         raise shortage(path, error) or unreadable_table(path, error) from None
     except (pa.ArrowException, ValueError, MemoryError) as error:   # cut short, not Parquet
@@ -575,7 +581,10 @@ def read_table(path) -> pd.DataFrame:
     except ValueError:
         raise InputFileError(f"{str(path)!r}: its fluxpart schema metadata is not valid "
                              "JSON; the file is damaged: rerun to rewrite the folder") from None
-    frame = table.to_pandas()
+    try:
+        frame = table.to_pandas(use_threads=False)
+    except (pa.ArrowException, MemoryError) as error:
+        raise shortage(path, error) or damaged_table(path, error) from None
     if info.get("index") is not None:
         frame = frame.set_index(info["index"])
     columns = info.get("columns") or {
