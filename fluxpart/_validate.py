@@ -433,6 +433,22 @@ def odd_entry(path: Path) -> str:
         except OSError:
             target = "?"
         return f"a symbolic link to {target!r}, which does not exist"
+    return mode_kind(mode)
+
+
+def mode_kind(mode: int) -> str:
+    """The kind of an entry of ``stat(2)``'s `mode` that is not a file or a folder.
+
+    Returns
+    -------
+    str
+        ``"a named pipe"``, ``"a device"`` (character or block) or ``"a socket"``; ``""``
+        for a regular file, a folder or a symbolic link.
+
+    References
+    ----------
+    inode(7): ``S_ISFIFO``, ``S_ISCHR``, ``S_ISBLK`` and ``S_ISSOCK`` (m).
+    """
     if stat.S_ISFIFO(mode):
         return "a named pipe"
     if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):

@@ -355,19 +355,13 @@ def special_kind(path) -> str:
     fifo(7) and inode(7): ``S_ISFIFO``, ``S_ISCHR``, ``S_ISBLK`` and ``S_ISSOCK`` of
     ``stat(2)``'s ``st_mode`` (m).
     """
-    import stat
+    from ._validate import mode_kind
 
     try:
         mode = os.stat(path).st_mode
     except (OSError, ValueError):
         return ""
-    if stat.S_ISFIFO(mode):
-        return "a named pipe"
-    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
-        return "a device"
-    if stat.S_ISSOCK(mode):
-        return "a socket"
-    return ""
+    return mode_kind(mode)
 
 
 def _existing(path: Path) -> Path:
