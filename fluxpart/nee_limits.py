@@ -306,12 +306,16 @@ def cut_nee(nee, stamps=None, columns=None, written=None) -> str | None:
     found, where = _edges(np.sort(values[present]), written), ""
     if not found and stamps is not None and len(stamps) == values.size:
         index = pd.DatetimeIndex(stamps)
-        months = index.year.to_numpy() * 12 + index.month.to_numpy() - 1
-        for first in np.unique(months[present]):
-            chosen = present & (months >= first) & (months < first + SEASON_MONTHS)
-            found = _edges(np.sort(values[chosen]), written)
+        months = (index.year.to_numpy() * 12 + index.month.to_numpy() - 1)[present]
+        # the present values in month order once: each run of months is then one slice
+        # (not a pass over the whole record per month)
+        order = np.argsort(months, kind="stable")
+        months, ordered = months[order], values[present][order]
+        for first in np.unique(months):
+            start, stop = np.searchsorted(months, [first, first + SEASON_MONTHS])
+            found = _edges(np.sort(ordered[start:stop]), written)
             if found:
-                last = int(months[chosen].max())
+                last = int(months[stop - 1])
                 where = (f" in {first // 12:04d}-{first % 12 + 1:02d} .. "
                          f"{last // 12:04d}-{last % 12 + 1:02d}")
                 break
