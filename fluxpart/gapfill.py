@@ -1871,7 +1871,7 @@ def fill_frame(frame, *, target="nee", is_night=None, donors="separate_day_night
                vpd_tolerance=_VPD_TOLERANCE, max_window_days=_MAX_WINDOW_DAYS,
                min_donors=_MIN_DONORS,
                interpolation_hours=_INTERPOLATION_HOURS,
-               estimate="local_linear") -> pd.DataFrame:
+               estimate="local_linear", sun_up=None) -> pd.DataFrame:
     """Fill the drivers, then the flux column of a canonical frame.
 
     Parameters
@@ -1892,6 +1892,10 @@ def fill_frame(frame, *, target="nee", is_night=None, donors="separate_day_night
         Largest half-width of any window [days]; default 140.
     interpolation_hours : float
         As in :func:`fill_drivers` [hours]; default 3.
+    sun_up : numpy.ndarray of bool, optional
+        As in :func:`fill_marginal`: with it, a night gap with the sun below the horizon
+        takes dark night donors first (the pipeline's ``gapfill_donors = "dark_first"``);
+        default None, the night class as it is.
 
     Returns
     -------
@@ -1919,7 +1923,7 @@ def fill_frame(frame, *, target="nee", is_night=None, donors="separate_day_night
                          is_night=is_night, donors=donors, rg_tolerance=rg_tolerance,
                          tair_tolerance=tair_tolerance, vpd_tolerance=vpd_tolerance,
                          max_window_days=max_window_days, min_donors=min_donors,
-                         estimate=estimate)
+                         estimate=estimate, sun_up=sun_up)
     flux.columns = [f"{target}_filled" if c == "value" else f"{target}_fill_{c}"
                     for c in flux.columns]
     return pd.concat([drivers, flux], axis=1)

@@ -1593,6 +1593,23 @@ def test_dark_gaps_take_dark_donors_and_recover_the_respiration():
     np.testing.assert_array_equal(after["value"].to_numpy()[kept], before["value"].to_numpy()[kept])
 
 
+def test_fill_frame_takes_dark_first_as_fill_marginal_does():
+    # known-truth recovery on invented data: fill_frame's users get the dark-first donor
+    # rule too (0.27.0 had it only in fill_marginal and the pipeline); the flux fill is
+    # fill_marginal's of the filled drivers, and the dark fills recover the respiration
+    index, nee, truth, drivers, night, sun_up, missing = _twilight_record(28, 3)
+    frame = drivers.assign(nee=nee)
+    out = fill_frame(frame, is_night=night, sun_up=sun_up)
+    expected = fill_marginal_module(nee, driver_conditions(fill_drivers(frame), soil=True),
+                                    index, is_night=night, sun_up=sun_up)
+    np.testing.assert_array_equal(out["nee_filled"], expected["value"])
+    bias = float(np.mean(out["nee_filled"].to_numpy()[missing] - truth[missing]))
+    plain = fill_frame(frame, is_night=night)
+    bias_plain = float(np.mean(plain["nee_filled"].to_numpy()[missing] - truth[missing]))
+    assert bias_plain < -0.02           # twilight donors' uptake without sun_up
+    assert abs(bias) < 0.01             # the noise's mean over ~300 donors
+
+
 def test_dark_gap_without_dark_donors_nearby_keeps_the_night_class():
     # where darkness is rare (a high-latitude summer) a dark gap is not filled from
     # another season's dark records: past the windows of quality A and B it takes the
