@@ -101,3 +101,24 @@ def test_latent_heat_for_two_weeks_of_the_example_is_named_by_the_reader(tmp_pat
         if change:
             assert "days from 2021-07-06 to 2021-07-19" in texts[0]
             assert texts[0].startswith("nee: column 'co2_exchange'")
+
+
+def test_a_callers_frame_with_heat_flux_days_is_named_as_the_reader_names_a_file():
+    """`process` on a caller's frame: the demo year (invented) with latent heat in W m-2
+    as NEE for ten July days is named among the frame's unit warnings; the demo itself,
+    at 30 and 60 minutes, is not."""
+    from fluxpart import demo
+    from fluxpart.unit_checks import frame_messages
+
+    for minutes in (30, 60):
+        frame, _ = demo.site_year(0, interval_minutes=minutes)
+        assert not [t for t in frame_messages(frame, interval_minutes=minutes)
+                    if "holds another quantity" in t]
+    frame, _ = demo.site_year(0)
+    days = (frame.index >= "2021-07-10") & (frame.index < "2021-07-20")
+    days = days & frame["nee"].notna().to_numpy()
+    frame.loc[days, "nee"] = 0.45 * frame.loc[days, "rg"].clip(lower=0) - 20.0
+    texts = [t for t in frame_messages(frame) if "holds another quantity" in t]
+    assert len(texts) == 1
+    assert texts[0].startswith("frame (process() takes canonical units): nee: column 'nee'")
+    assert "days from 2021-07-10 to 2021-07-19" in texts[0]
