@@ -1087,6 +1087,12 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                             f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; "
                             "screening will reject them"
                             + _code_hint(name, values, converted[name], derived, missing))
+    if outside.get("nee"):
+        from .foreign_days import foreign_days
+        text = foreign_days(frame["nee"].to_numpy(), frame.index, VARIABLES["nee"].minimum,
+                            VARIABLES["nee"].maximum, column=source_of["nee"],
+                            unit=VARIABLES["nee"].unit)
+        warnings.extend([text] if text else [])
     report = ReadReport(
         source=", ".join(str(p) for p in paths),
         interval_minutes=interval_minutes,

@@ -114,7 +114,49 @@ def clock_and_preflight(frame, site, config, interval, geometry, is_night, scree
     return verdict, findings
 
 
-def refuse(verdict, findings, config) -> None:
+#: Share of the records with an NEE value that the site flag rejects beyond which a fatal
+#: finding's refusal names the flag as its likely cause (round mistakes35: a flag of the
+#: opposite meaning left 25 of 17520 records and was refused as "supply measured night
+#: NEE"; a site's own checks reject some 5-40 % of the records, Papale et al. 2006 (m)).
+FLAG_CAUSE_SHARE = 0.5
+
+
+def flag_cause(frame) -> str | None:
+    """The site flag named as the cause of a shortage of measured NEE, or None.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame or None
+        The record, with ``nee`` [µmol m-2 s-1] and, where mapped, ``nee_flag`` [1]
+        (non-zero = rejected by the site's own checks).
+
+    Returns
+    -------
+    str or None
+        A clause naming how many of the records with an NEE value the flag rejects,
+        where that is more than :data:`FLAG_CAUSE_SHARE` of them; None otherwise.
+
+    References
+    ----------
+    Papale, D. et al. (2006). Towards a standardized processing of Net Ecosystem Exchange
+    measured with eddy covariance technique: algorithms and uncertainty estimation.
+    Biogeosciences 3, 571-583 (the share of records quality control removes) (m).
+    """
+    if frame is None or "nee_flag" not in frame.columns or "nee" not in frame.columns:
+        return None
+    present = np.isfinite(frame["nee"].to_numpy(dtype=float))
+    flag = frame["nee_flag"].to_numpy(dtype=float)
+    rejected = present & np.isfinite(flag) & (flag != 0.0)
+    if not present.any() or rejected.sum() <= FLAG_CAUSE_SHARE * present.sum():
+        return None
+    return (f"the site flag (nee_flag) rejects {int(rejected.sum())} of the "
+            f"{int(present.sum())} records with an NEE value "
+            f"({rejected.sum() / present.sum():.1%}), likely why these stages lack "
+            "measured NEE: check [input] flag_accept, the flag values that mean a good "
+            "record (a flag of the opposite meaning?)")
+
+
+def refuse(verdict, findings, config, frame=None) -> None:
     """Stop before any fit on a clock problem (unless allowed) or a fatal finding.
 
     Parameters
@@ -125,6 +167,9 @@ def refuse(verdict, findings, config) -> None:
         The preflight findings.
     config : Config
         Settings; ``clock_check = "refuse"`` makes a clock problem stop the run.
+    frame : pandas.DataFrame, optional
+        The record: where its site flag rejects most records with an NEE value, a
+        fatal finding's refusal ends with :func:`flag_cause`.
 
     Raises
     ------
@@ -143,6 +188,8 @@ def refuse(verdict, findings, config) -> None:
     if clock_problems:
         raise ConfigError(f"{text} (to process anyway, set [processing] clock_check = "
                           "\"warn\", in Python Config(clock_check=\"warn\"))")
+    cause = flag_cause(frame)
+    text = text if cause is None else f"{text}; {cause}"
     raise InsufficientDataError(f"{text} (fluxpart check lists every problem)")
 
 
@@ -217,7 +264,7 @@ def screened_record(frame, site, config, interval, provenance, accepted) -> Scre
             frame, geometry["potential_radiation"].to_numpy(), interval, accept_units=accepted))
     verdict, findings = clock_and_preflight(frame, site, config, interval, geometry, is_night,
                                             screens, (provenance or {}).get("reader"))
-    refuse(verdict, findings, config)
+    refuse(verdict, findings, config, frame)
     if verdict is not None:
         warnings.extend(verdict.problems)
     warnings.extend(str(f) for f in findings if f.stage not in ("u* threshold", "annual budget"))

@@ -1389,6 +1389,13 @@ def frame_messages(frame, potential=None, interval_minutes: int = 30,
     flag = _flag_rejects_most(frame, _FLAG_REJECTS_MOST)
     if flag:
         found.append(flag)
+    if "nee" in converted:
+        # another quantity on some days: the reader names it for files (round mistakes35)
+        from .foreign_days import foreign_days
+        days = foreign_days(converted["nee"], frame.index, READER_VARIABLES["nee"].minimum,
+                            READER_VARIABLES["nee"].maximum, column="nee",
+                            unit=READER_VARIABLES["nee"].unit)
+        found.extend([days] if days else [])
     refusals, suspicions = mixup_messages(converted, {}, {name: name for name in converted},
                                           interval_minutes, potential, (), frame.index)
     lines = []
