@@ -609,7 +609,8 @@ def simulate(site: Site, variant=frozenset(), seed_offset=0):
     truth = pd.DataFrame({"nee": nee, "gpp": gpp, "reco": reco, "night": night, "thr": thr,
                           "share": share, "lost": lost | absent | (flag > 1),
                           "outage": outage | absent,
-                          "drain": extra.get("drain", np.zeros(n))}, index=idx)
+                          "drain": extra.get("drain", np.zeros(n)),
+                          "rain": met["raining"]}, index=idx)
     if "forest" in extra:
         truth["forest"] = extra["forest"]
     if "netted" in extra:
