@@ -90,12 +90,13 @@ constant or form of this script with no source):
   a quarter of the mean GPP of the preceding 24 hours (Amthor 2000 (m), size invented).
 - u* loss: by night (Rg < 5 W m-2) the measured share of the turbulent flux
   1 - 0.85 (1 - u*/thr)^1.5 below the threshold (invented: 92 % at 0.8 thr, 70 % at half);
-  at M also a drainage loss 0.45 c (1 - U/6 m s-1) on clear, calm nights (c the night's
-  clear-sky share; invented size in the 10-40 % underestimates reported for slope sites,
+  at M also a drainage loss 0.45 c (1 - U/6 m s-1) on clear, calm nights (c = (1 - N - 0.2)
+  / 0.8 of the cloud cover N, U the day's synoptic wind; invented size in the 10-40 % underestimates reported for slope sites,
   Aubinet 2008 (m)).
 - storage at S: a CO2 stock below the sensor filled at night by a share exp(-u*/0.2) of
   the respiration and emptied with a time constant of 1 h by day and 6 h at night
   (invented); the profile's storage flux with noise 0.3 umol m-2 s-1.
+- soil probe: 0.03 K of noise on the logged soil temperature (invented size).
 - random error: Laplace-distributed (Richardson et al. 2006 (m)) with sigma = 0.5 + 0.12
   |NEE| and lag-1 correlation 0.25 (invented); 0.3 % spikes of 8-20 umol m-2 s-1.
 """
