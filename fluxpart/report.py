@@ -372,7 +372,15 @@ def _summary_card(written: Written) -> tuple[str, bool]:
         uptake = row.get("net_uptake_t_co2_per_ha")
         if not _finite(uptake) and _finite(nee):
             uptake = -nee * _T_CO2_PER_HA_PER_G_C_M2
-        if kind == "ci95":
+        # a net source is a release of CO2, said as one: "a net uptake of −3.91 t CO2
+        # ha-1" read as a credit with its minus sign dropped (review39); the spans of a
+        # release carry the released tonnes, positive
+        release = _finite(uptake) and float(uptake) < 0
+        if kind == "ci95" and release:
+            ends = [_number(end * _T_CO2_PER_HA_PER_G_C_M2, 2, key, label)
+                    for end, key in ((low, "release_ci95_low"), (high, "release_ci95_high"))]
+            t_interval = f"95 % interval {ends[0]} to {ends[1]}"
+        elif kind == "ci95":
             t_text = (f"{_number(-high * _T_CO2_PER_HA_PER_G_C_M2, 2, 'uptake_ci95_low', label)}"
                       f" to {_number(-low * _T_CO2_PER_HA_PER_G_C_M2, 2, 'uptake_ci95_high', label)}")
             t_interval = f"95 % interval {t_text}"
@@ -382,12 +390,17 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                           + " (combined)")
         else:
             t_interval = "no uncertainty written"
+        if release:
+            shown = _number(-float(uptake), 2, "net_release_t_co2_per_ha", label, "t CO2 ha-1")
+            tonnes = f"a net release of {shown}"
+        else:
+            shown = _number(uptake, 2, "net_uptake_t_co2_per_ha", label, "t CO2 ha-1")
+            tonnes = f"a net uptake of {shown}"
         headline = (
             f'<p class="headline">The ecosystem {verb} net '
             f"{_number(abs(nee), 0, 'nee_abs', label, _CARBON_UNIT)} of carbon: "
             f"NEE {_number(nee, 1, 'nee', label, _CARBON_UNIT)} "
-            f"({_interval_html(kind, low, high, 1, 'nee', label, row)}), a net uptake of "
-            f"{_number(uptake, 2, 'net_uptake_t_co2_per_ha', label, 't CO2 ha-1')} "
+            f"({_interval_html(kind, low, high, 1, 'nee', label, row)}), {tonnes} "
             f"({t_interval}).</p>")
         headline += _unmeasured_note(written, label, periods[label][3])
         flux_rows = []
