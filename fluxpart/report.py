@@ -222,12 +222,24 @@ def _interval_html(kind, low, high, decimals, key, label, row) -> str:
     return "no uncertainty written"
 
 
-def _period_heading(label, first, last, partial) -> str:
+def _period_heading(label, first, last, partial, row=None) -> str:
     span = f"{first:%d %b %Y} – {last:%d %b %Y}"
+    # a budget year not starting on 1 January is labelled by the year it starts in, so a
+    # record of January-June 2013 under year_start 07-01 read "2012: 01 Jan 2013 – 30 Jun
+    # 2013"; the period itself is named before the records it holds (review39)
+    start = row.get("period_start") if row is not None else None
+    end = row.get("period_end") if row is not None else None
+    if (start is not None and end is not None and pd.notna(start) and pd.notna(end)
+            and (pd.Timestamp(start).month, pd.Timestamp(start).day) != (1, 1)):
+        start, end = pd.Timestamp(start), pd.Timestamp(end)
+        last_day = end - pd.Timedelta(days=1) if end == end.normalize() else end
+        period = (f"Budget year {_e(label)} ({start:%d %b %Y} – {last_day:%d %b %Y}): "
+                  f"records {span}")
+    else:
+        period = f"{_e(label)}: {span}"
     if partial:
-        return (f"{_e(label)}: {span}, partial period — sums over the records present, not an "
-                "annual total")
-    return f"{_e(label)}: {span}"
+        return f"{period}, partial period — sums over the records present, not an annual total"
+    return period
 
 
 def _ustar_year_rows(written: Written) -> pd.DataFrame:
@@ -365,8 +377,8 @@ def _summary_card(written: Written) -> tuple[str, bool]:
         verb = "took up" if nee < 0 else "released"
         if not np.isfinite(nee):
             cards.append(f'<div class="card" data-period="{_e(label)}"><h3>'
-                         f"{_period_heading(label, first, last, partial)}</h3><p>No NEE sum was "
-                         "written for this period.</p></div>")
+                         f"{_period_heading(label, first, last, partial, row)}</h3><p>No NEE "
+                         "sum was written for this period.</p></div>")
             continue
         # t CO2 ha-1 of uptake (positive = uptake): written by the run where present
         uptake = row.get("net_uptake_t_co2_per_ha")
@@ -457,7 +469,7 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                 + (f"; margin ±{100 * float(margin):.0f} %" if _finite(margin) else "")
                 + ").</li>")
         cards.append(f'<div class="card" data-period="{_e(label)}"><h3>'
-                     f"{_period_heading(label, first, last, partial)}</h3>{headline}"
+                     f"{_period_heading(label, first, last, partial, row)}</h3>{headline}"
                      f"{flux_table}{unfitted}<ul>{''.join(facts)}</ul></div>")
     index = written.timeseries.index
     record = (f'<p class="record-line">Record {index[0]:%d %b %Y} – {index[-1]:%d %b %Y}, '

@@ -161,3 +161,24 @@ def test_a_notebook_shows_the_measured_share_as_run_prints_it(demo_result):
     cells = re.findall(r"<td>([^<]*)</td>", demo_result._repr_html_())
     assert f"{share:.2f}" in cells
     assert f"{demo_result.annual['nee'].iloc[0]:.1f}" in cells
+
+
+def test_a_budget_year_heading_names_its_period_before_the_records_it_holds():
+    """Under `year_start = "07-01"` a budget year is labelled by the calendar year it
+    starts in (README), so the report's card of a record of January-June 2013 read "2012:
+    01 Jan 2013 – 30 Jun 2013": a year label with dates of another year. The heading now
+    names the budget year's own span first (1 July 2012 to 30 June 2013, the annual
+    table's period_start and its exclusive period_end less one day: calendar arithmetic),
+    then the records. Calendar-year budgets read as before. Invented stamps."""
+    from fluxpart.report import _period_heading
+
+    row = pd.Series({"period_start": pd.Timestamp("2012-07-01"),
+                     "period_end": pd.Timestamp("2013-07-01")})
+    heading = _period_heading(2012, pd.Timestamp("2013-01-01 00:00"),
+                              pd.Timestamp("2013-06-30 23:00"), True, row)
+    assert heading.startswith("Budget year 2012 (01 Jul 2012 – 30 Jun 2013): records "
+                              "01 Jan 2013 – 30 Jun 2013, partial period")
+    calendar = pd.Series({"period_start": pd.Timestamp("2013-01-01"),
+                          "period_end": pd.Timestamp("2014-01-01")})
+    assert _period_heading(2013, pd.Timestamp("2013-01-01"), pd.Timestamp("2013-12-31 23:00"),
+                           False, calendar) == "2013: 01 Jan 2013 – 31 Dec 2013"
