@@ -258,3 +258,34 @@ def test_stamps_that_read_day_first_and_month_first_get_no_guess(tmp_path):
         read_table(path, columns=columns, time_column="stamp",
                    time_format="%Y-%m-%d %H:%M", time_marks="end")
     assert "every stamp reads as" not in str(refused.value)
+
+
+def test_diff_does_not_difference_a_year_label_over_two_periods():
+    """`diff` of a result with calendar years against one with `year_start = "07-01"`
+    compared row "2013" of both: calendar 2013 and the budget year from 1 July 2013,
+    printing "nee 106.8 -> -31.5, change -138.3, relative -1.3" as if the setting had
+    moved one year's NEE. A year whose period_start or period_end differ is now listed
+    with both values and no change, and a note says why; a year of one period is
+    differenced as before (second - first, plain arithmetic). Invented sums."""
+    from pathlib import Path
+
+    from fluxpart.diff import DiffReport, _annual_moves
+
+    def table(start, end, nee):
+        return pd.DataFrame({"period_start": [pd.Timestamp(start)],
+                             "period_end": [pd.Timestamp(end)], "nee": [nee]},
+                            index=pd.Index([2013], name="year"))
+
+    moves, _ = _annual_moves(table("2013-01-01", "2014-01-01", 106.8),
+                             table("2013-07-01", "2014-07-01", -31.5))
+    assert moves.at[(2013, "nee"), "first"] == 106.8
+    assert moves.at[(2013, "nee"), "second"] == -31.5
+    assert pd.isna(moves.at[(2013, "nee"), "change"])
+    assert pd.isna(moves.at[(2013, "nee"), "relative"])
+    text = DiffReport(Path("a"), Path("b"), (("setting", "year_start", "01-01", "07-01"),),
+                      moves, 0).format()
+    assert "note: year(s) 2013 cover other periods in the two folders" in text
+    same, _ = _annual_moves(table("2013-01-01", "2014-01-01", 106.8),
+                            table("2013-01-01", "2014-01-01", 110.9))
+    assert same.at[(2013, "nee"), "change"] == pytest.approx(110.9 - 106.8)
+    assert "cover other periods" not in DiffReport(Path("a"), Path("b"), (), same, 0).format()
