@@ -57,6 +57,10 @@ def _format_annual(annual) -> str:
                   "errors not included (see the README's cautions):",
                   table.to_string(float_format=lambda v: f"{v:9.1f}", na_rep="        -")]
     if "net_uptake_t_co2_per_ha" in annual.columns:
+        import math
+
+        from .units import T_CO2_HA_PER_G_C_M2
+
         lines += ["", "Net uptake [t CO2 ha-1 per year; positive = uptake]:"]
         for year, row in annual.iterrows():
             partial = ""
@@ -68,8 +72,16 @@ def _format_annual(annual) -> str:
                 else:
                     partial = (f"; {int(row.get('records_unfilled', 0))} records unfilled: "
                                "not an annual total")
+            # the stated 95 % interval in tonnes, as the report's summary gives it: the
+            # g C table above states NEE's, and 1 sigma alone invited ± 2 sigma (review39)
+            interval = ""
+            low, high = row.get("nee_ci95_low"), row.get("nee_ci95_high")
+            if (low is not None and high is not None
+                    and math.isfinite(float(low)) and math.isfinite(float(high))):
+                interval = (f"; 95 % interval {-float(high) * T_CO2_HA_PER_G_C_M2:.2f} to "
+                            f"{-float(low) * T_CO2_HA_PER_G_C_M2:.2f}")
             lines.append(f"  {year}: {row['net_uptake_t_co2_per_ha']:.2f} ± "
-                         f"{row['net_uptake_t_co2_per_ha_uncertainty']:.2f} (1 sigma; "
+                         f"{row['net_uptake_t_co2_per_ha_uncertainty']:.2f} (1 sigma{interval}; "
                          f"u* threshold {row['ustar_threshold']:.3f} m s-1{partial})")
     return "\n".join(lines)
 

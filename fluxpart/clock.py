@@ -882,9 +882,10 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
     # the sun crosses the meridian 4 min later per degree west (Earth turns 360° per day);
     # a longitude of the wrong sign moves solar noon by 8 min per degree
     flipped = (8.0 * longitude + 720.0) % 1440.0 - 720.0
+    flip = None
     if abs(longitude) >= 2.0 and abs(flipped - shift) <= 10.0:
-        return (f"[site] longitude = {-longitude:g} (the configured {longitude:g} has the "
-                "wrong sign)"), None
+        flip = (f"[site] longitude = {-longitude:g} (the configured {longitude:g} has the "
+                "wrong sign)")
     offset = utc_offset + round(hours * 4.0) / 4.0          # offsets come in quarter hours
     if offset > 14.0:          # a shift is known modulo a day: zones run from -12 to +14 h
         offset -= 24.0
@@ -938,6 +939,15 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
         # 0, 0 lies in the open Atlantic: a placeholder left in the site config
         fixes.insert(0, "[site] latitude and longitude (0, 0 is a placeholder, in the open "
                         "ocean: give the tower's coordinates)")
+    if flip is not None:
+        # the same shift is also a stamp convention or a clock setting where one record or
+        # whole hours lie near 8 min per degree (7.5° at 60 min, 3.75° at 30 min): name
+        # those first, the sign last, since the data cannot tell them apart and a
+        # longitude flipped to match a stamp error passes the check (review39)
+        others = [fix for fix in fixes if not fix.startswith("[site] longitude (")]
+        if not others:
+            return flip, None
+        return " or ".join([*others, flip]), suggested
     if not fixes:
         fixes.append(f"the logger clock, or [site] utc_offset (about {offset:g} h) or "
                      "[site] longitude")

@@ -57,7 +57,9 @@ class DiffReport:
     annual : pandas.DataFrame
         One row per (year, column) of ``annual`` whose value differs: ``first``,
         ``second``, ``change`` (second - first, in the column's unit) and
-        ``relative`` (change / |first|; NaN when first is 0 or missing).
+        ``relative`` (change / |first|; NaN when first is 0 or missing). Both are NaN
+        for a year whose row covers another period in each folder (``period_start`` or
+        ``period_end`` differ; since review39).
     same_annual : int
         Annual values that are equal in both folders.
     """
@@ -104,6 +106,12 @@ class DiffReport:
                 else:
                     lines.append(f"  {label:<{width}}  first {a}  second {b}")
             if not self.annual.empty:
+                other = _years_of_other_periods(self.annual)
+                if other:
+                    lines.append(f"note: year(s) {', '.join(str(y) for y in other)} cover "
+                                 "other periods in the two folders (period_start / "
+                                 "period_end differ: another [processing] year_start): "
+                                 "their values are listed, not differenced")
                 lines.append("How the annual numbers moved (units of each column; change = "
                              "second - first; relative = change / |first|):")
                 shown = self.annual.copy()
@@ -111,6 +119,17 @@ class DiffReport:
             lines.append(f"annual values equal in both: {self.same_annual}")
         lines.append(f"Caution: {CAUTION}")
         return "\n".join(lines)
+
+
+def _years_of_other_periods(annual: pd.DataFrame) -> list:
+    """Years of a moves table whose period_start or period_end differ between the folders."""
+    out = []
+    for year, column in annual.index:
+        if column in ("period_start", "period_end") and year not in out:
+            a, b = annual.at[(year, column), "first"], annual.at[(year, column), "second"]
+            if a is not None and b is not None and pd.notna(a) and pd.notna(b):
+                out.append(year)
+    return out
 
 
 def _short(value) -> str:
@@ -177,10 +196,27 @@ def _recorded_items(first: dict, second: dict) -> list:
     return items
 
 
+def _other_periods(first: pd.DataFrame, second: pd.DataFrame) -> set:
+    """Years whose row covers another period in each table (``period_start`` or
+    ``period_end`` differ: another ``year_start``): their sums are not of one period."""
+    out = set()
+    for year in first.index.intersection(second.index):
+        for column in ("period_start", "period_end"):
+            if column in first.columns and column in second.columns:
+                a, b = first.at[year, column], second.at[year, column]
+                if pd.notna(a) and pd.notna(b) and pd.Timestamp(a) != pd.Timestamp(b):
+                    out.add(year)
+    return out
+
+
 def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFrame, int]:
     rows, same = [], 0
     years = first.index.union(second.index)
     columns = list(first.columns) + [c for c in second.columns if c not in first.columns]
+    # a year label over two periods (calendar 2013 and the budget year from 1 July 2013)
+    # is listed with both values but not differenced: "nee moved by -138 (-130 %)" read
+    # as the setting's effect on one year (review39)
+    other = _other_periods(first, second)
     for year in years:
         for column in columns:
             a = first.at[year, column] if year in first.index and column in first.columns \
@@ -196,8 +232,9 @@ def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFra
                 if equal and a is not None and b is not None:
                     same += 1
                     continue
-                change = fb - fa
-                relative = change / abs(fa) if np.isfinite(fa) and fa != 0 else np.nan
+                change = fb - fa if year not in other else np.nan
+                relative = (change / abs(fa) if np.isfinite(fa) and fa != 0 and np.isfinite(change)
+                            else np.nan)
                 rows.append({"year": year, "column": column, "first": fa, "second": fb,
                              "change": change, "relative": relative})
             else:

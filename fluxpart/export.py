@@ -796,4 +796,9 @@ def command_export(args) -> int:
         from .export_csv import command_csv
 
         command_csv(args.directory, args.csv)
+    # the files carry the annual t CO2 ha-1 and the 95 % intervals: the caution every other
+    # command that shows them prints (run, demo, report, verify, diff, batch; review39)
+    from .manifest import CAUTION
+
+    print(f"Caution: {CAUTION}")
     return 0

@@ -1164,6 +1164,13 @@ _CLOCK_MOVES_NOON = ("shifted", "daylight_saving")
 #: Findings that judge Rg against the sun's symmetry about the solar noon the site's
 #: settings predict (:func:`fluxpart.column_faults.shaded_rg`).
 _NOON_SYMMETRY_STAGES = ("input (rg shaded)",)
+#: Clock verdicts under which the site's latitude is not the record's: the seasonal
+#: cycle of Rg fits the other hemisphere or another latitude (:mod:`fluxpart.clock`).
+_GEOMETRY_WRONG = ("hemisphere", "latitude")
+#: Findings that judge Rg against the potential radiation of the site's latitude (how
+#: high the sun stands in a record): a wrong latitude puts the sun high in the record's
+#: winter and low in its summer, so these blamed the sensor for the latitude (review39).
+_POTENTIAL_STAGES = ("input (rg zeros)", "input (rg dim)")
 
 
 def defer_to_clock(findings: list, clock_status: str | None) -> list:
@@ -1181,7 +1188,10 @@ def defer_to_clock(findings: list, clock_status: str | None) -> list:
     -------
     list of Finding
         `findings` in their order, less the shaded-Rg finding where the clock check
-        found the stamps shifted against the sun (``"shifted"``, ``"daylight_saving"``).
+        found the stamps shifted against the sun (``"shifted"``, ``"daylight_saving"``),
+        and less the Rg-zeros and dim-Rg findings where it found the latitude wrong
+        (``"hemisphere"``, ``"latitude"``: they judge Rg by the sun's height at the
+        configured latitude; since review39).
 
     Notes
     -----
@@ -1200,6 +1210,8 @@ def defer_to_clock(findings: list, clock_status: str | None) -> list:
     ----------
     Iqbal, M. (1983). An Introduction to Solar Radiation. Academic Press (m).
     """
+    if clock_status in _GEOMETRY_WRONG:
+        return [finding for finding in findings if finding.stage not in _POTENTIAL_STAGES]
     if clock_status not in _CLOCK_MOVES_NOON:
         return list(findings)
     return [finding for finding in findings if finding.stage not in _NOON_SYMMETRY_STAGES]

@@ -222,12 +222,24 @@ def _interval_html(kind, low, high, decimals, key, label, row) -> str:
     return "no uncertainty written"
 
 
-def _period_heading(label, first, last, partial) -> str:
+def _period_heading(label, first, last, partial, row=None) -> str:
     span = f"{first:%d %b %Y} – {last:%d %b %Y}"
+    # a budget year not starting on 1 January is labelled by the year it starts in, so a
+    # record of January-June 2013 under year_start 07-01 read "2012: 01 Jan 2013 – 30 Jun
+    # 2013"; the period itself is named before the records it holds (review39)
+    start = row.get("period_start") if row is not None else None
+    end = row.get("period_end") if row is not None else None
+    if (start is not None and end is not None and pd.notna(start) and pd.notna(end)
+            and (pd.Timestamp(start).month, pd.Timestamp(start).day) != (1, 1)):
+        start, end = pd.Timestamp(start), pd.Timestamp(end)
+        last_day = end - pd.Timedelta(days=1) if end == end.normalize() else end
+        period = (f"Budget year {_e(label)} ({start:%d %b %Y} – {last_day:%d %b %Y}): "
+                  f"records {span}")
+    else:
+        period = f"{_e(label)}: {span}"
     if partial:
-        return (f"{_e(label)}: {span}, partial period — sums over the records present, not an "
-                "annual total")
-    return f"{_e(label)}: {span}"
+        return f"{period}, partial period — sums over the records present, not an annual total"
+    return period
 
 
 def _ustar_year_rows(written: Written) -> pd.DataFrame:
@@ -365,14 +377,22 @@ def _summary_card(written: Written) -> tuple[str, bool]:
         verb = "took up" if nee < 0 else "released"
         if not np.isfinite(nee):
             cards.append(f'<div class="card" data-period="{_e(label)}"><h3>'
-                         f"{_period_heading(label, first, last, partial)}</h3><p>No NEE sum was "
-                         "written for this period.</p></div>")
+                         f"{_period_heading(label, first, last, partial, row)}</h3><p>No NEE "
+                         "sum was written for this period.</p></div>")
             continue
         # t CO2 ha-1 of uptake (positive = uptake): written by the run where present
         uptake = row.get("net_uptake_t_co2_per_ha")
         if not _finite(uptake) and _finite(nee):
             uptake = -nee * _T_CO2_PER_HA_PER_G_C_M2
-        if kind == "ci95":
+        # a net source is a release of CO2, said as one: "a net uptake of −3.91 t CO2
+        # ha-1" read as a credit with its minus sign dropped (review39); the spans of a
+        # release carry the released tonnes, positive
+        release = _finite(uptake) and float(uptake) < 0
+        if kind == "ci95" and release:
+            ends = [_number(end * _T_CO2_PER_HA_PER_G_C_M2, 2, key, label)
+                    for end, key in ((low, "release_ci95_low"), (high, "release_ci95_high"))]
+            t_interval = f"95 % interval {ends[0]} to {ends[1]}"
+        elif kind == "ci95":
             t_text = (f"{_number(-high * _T_CO2_PER_HA_PER_G_C_M2, 2, 'uptake_ci95_low', label)}"
                       f" to {_number(-low * _T_CO2_PER_HA_PER_G_C_M2, 2, 'uptake_ci95_high', label)}")
             t_interval = f"95 % interval {t_text}"
@@ -382,12 +402,17 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                           + " (combined)")
         else:
             t_interval = "no uncertainty written"
+        if release:
+            shown = _number(-float(uptake), 2, "net_release_t_co2_per_ha", label, "t CO2 ha-1")
+            tonnes = f"a net release of {shown}"
+        else:
+            shown = _number(uptake, 2, "net_uptake_t_co2_per_ha", label, "t CO2 ha-1")
+            tonnes = f"a net uptake of {shown}"
         headline = (
             f'<p class="headline">The ecosystem {verb} net '
             f"{_number(abs(nee), 0, 'nee_abs', label, _CARBON_UNIT)} of carbon: "
             f"NEE {_number(nee, 1, 'nee', label, _CARBON_UNIT)} "
-            f"({_interval_html(kind, low, high, 1, 'nee', label, row)}), a net uptake of "
-            f"{_number(uptake, 2, 'net_uptake_t_co2_per_ha', label, 't CO2 ha-1')} "
+            f"({_interval_html(kind, low, high, 1, 'nee', label, row)}), {tonnes} "
             f"({t_interval}).</p>")
         headline += _unmeasured_note(written, label, periods[label][3])
         flux_rows = []
@@ -444,7 +469,7 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                 + (f"; margin ±{100 * float(margin):.0f} %" if _finite(margin) else "")
                 + ").</li>")
         cards.append(f'<div class="card" data-period="{_e(label)}"><h3>'
-                     f"{_period_heading(label, first, last, partial)}</h3>{headline}"
+                     f"{_period_heading(label, first, last, partial, row)}</h3>{headline}"
                      f"{flux_table}{unfitted}<ul>{''.join(facts)}</ul></div>")
     index = written.timeseries.index
     record = (f'<p class="record-line">Record {index[0]:%d %b %Y} – {index[-1]:%d %b %Y}, '

@@ -96,7 +96,12 @@ class Result:
         columns = [c for c in ("nee", "nee_ci95_low", "nee_ci95_high", "gpp_nighttime",
                                "gpp_daytime", "reco_nighttime", "reco_daytime",
                                "share_measured") if c in self.annual.columns]
-        table = self.annual[columns].to_html(float_format=lambda v: f"{v:.1f}")
+        # sums to 0.1 g C m-2; a share to two decimals, as `run` prints it (0.553 read
+        # "0.6" before review39)
+        table = self.annual[columns].to_html(
+            float_format=lambda v: f"{v:.1f}",
+            formatters={"share_measured": lambda v: f"{v:.2f}"} if "share_measured" in columns
+            else None)
         interval = ("; nee_ci95_low / nee_ci95_high: the stated 95 % interval of NEE, "
                     "systematic measurement errors not included"
                     if "nee_ci95_low" in columns else "")

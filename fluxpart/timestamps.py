@@ -826,6 +826,44 @@ def _written_where_it_changes(text: pd.Series, failed: np.ndarray, time_columns)
 _OFFSET_TAIL = re.compile(r"\s*[(\[]?\s*(?:UTC|GMT)?\s*(?P<offset>[+-]\d{2}:?\d{2})\s*[)\]]?\s*$")
 
 
+#: Stamp layouts common in logger files and spreadsheet exports, as strptime formats:
+#: ISO 8601's date order with a space or a T, slashes, day-first with dots, slashes or
+#: dashes, US month-first, and the compact digits (common practice; not the compact form
+#: with seconds, whose 12-digit stamps strptime also reads with one-digit minutes and seconds)
+_COMMON_FORMATS = (
+    "%Y-%m-%d %H:%M", "%Y-%m-%d %H:%M:%S", "%Y-%m-%dT%H:%M", "%Y-%m-%dT%H:%M:%S",
+    "%Y/%m/%d %H:%M", "%Y/%m/%d %H:%M:%S", "%d.%m.%Y %H:%M", "%d.%m.%Y %H:%M:%S",
+    "%d/%m/%Y %H:%M", "%d/%m/%Y %H:%M:%S", "%m/%d/%Y %H:%M", "%m/%d/%Y %H:%M:%S",
+    "%d-%m-%Y %H:%M", "%d-%m-%Y %H:%M:%S", "%Y%m%d%H%M",
+)
+
+
+def _common_format(text: pd.Series, time_format: str) -> str:
+    """A hint naming the one common layout every stamp reads under, else ''.
+
+    A time_format written for another file (day-first dots for ISO stamps) got no hint
+    at all where no rule above names the difference (review39). Only a layout under
+    which every stamp of the column parses, and no other of the list does, is named:
+    stamps that read both day-first and month-first (every day at most 12) get none.
+    """
+    stamps = text.dropna().astype(str).str.strip()
+    stamps = stamps[stamps != ""]
+    if not len(stamps):
+        return ""
+    fitting = []
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        for candidate in _COMMON_FORMATS:
+            if candidate == time_format:
+                continue
+            read = pd.to_datetime(stamps, format=candidate, errors="coerce")
+            if read.notna().all():
+                fitting.append(candidate)
+    if len(fitting) != 1:
+        return ""
+    return f"every stamp reads as time_format = {setting_text(fitting[0])}"
+
+
 def _text_around_stamps(text: pd.Series, failed: np.ndarray, time_format: str) -> str:
     """A hint where every stamp carries the same text before or after it that the format
     lacks ("'" of a spreadsheet's text cell, " Uhr", " h") or writes the ISO 8601 "T"
@@ -1319,6 +1357,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
+        elif failed.all() and _common_format(text, time_format):
+            hint = "; " + _common_format(text, time_format)
         hint = _mixed_forms(hint, text, failed, failed | is_24 | date_only, time_format,
                             source, lines)
         raise TimestampError(
