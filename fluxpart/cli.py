@@ -12,6 +12,7 @@ import contextlib
 import datetime
 import errno
 import gc
+import math
 import os
 import signal
 import sys
@@ -57,8 +58,6 @@ def _format_annual(annual) -> str:
                   "errors not included (see the README's cautions):",
                   table.to_string(float_format=lambda v: f"{v:9.1f}", na_rep="        -")]
     if "net_uptake_t_co2_per_ha" in annual.columns:
-        import math
-
         from .units import T_CO2_HA_PER_G_C_M2
 
         lines += ["", "Net uptake [t CO2 ha-1 per year; positive = uptake]:"]
