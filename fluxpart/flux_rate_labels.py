@@ -20,8 +20,9 @@ import unicodedata
 
 __all__ = ["rate_factor", "unreadable_rate_note"]
 
-#: Molar masses [g mol-1]: CO2 44.01 and C 12.011 (IUPAC standard atomic weights (m)).
-_MOLAR_MASS = {"co2": 44.01, "c": 12.011}
+#: Molar masses [g mol-1]: CO2 44.01 and C 12.011 (IUPAC standard atomic weights (m));
+#: "CO2-C" is the carbon of CO2, a mass of C (common practice).
+_MOLAR_MASS = {"co2": 44.01, "c": 12.011, "co2-c": 12.011}
 #: Amount prefixes -> factor to the base unit (SI prefixes, BIPM 2019 (m)).
 _PREFIX = {"": 1.0, "k": 1e3, "m": 1e-3, "u": 1e-6, "n": 1e-9}
 #: Time bases -> seconds (SI; 1 d = 86,400 s, BIPM 2019 table 8 (m)).
@@ -30,9 +31,10 @@ _SECONDS = {"s": 1.0, "sec": 1.0, "min": 60.0, "h": 3600.0, "hr": 3600.0, "hour"
 
 _RATE = re.compile(
     r"^(?P<prefix>[kmun]?)(?P<base>mol|g)"
-    r"(?:\s*(?P<species>co2|c)\b)?"
+    r"(?:\s*(?P<species>co2-c|co2|c)\b)?"
     r"\s*(?:/\s*|per\s+|\s)\s*m(?:-2|2)"
-    r"\s*(?:/\s*|per\s+|\s)\s*(?P<time>sec|s|min|hour|hr|h|day|d)(?:-1)?$")
+    r"\s*(?:/\s*|per\s+|\s)\s*(?P<count>\d+(?:\.\d+)?)?\s*"
+    r"(?P<time>sec|s|min|hour|hr|h|day|d)(?:-1)?$")
 
 
 def _normal(label: str) -> str:
@@ -41,6 +43,8 @@ def _normal(label: str) -> str:
     text = unicodedata.normalize("NFKC", label).replace("\u00b5", "u").replace("\u03bc", "u")
     text = text.replace("\u2212", "-").replace("^", "").replace("\u00b7", " ")
     text = re.sub(r"(?<=[a-z0-9])\.(?=[a-z])", " ", text.lower())
+    # the species in brackets after the amount ("umol(CO2)", "g (C)"; review40)
+    text = re.sub(r"\(\s*(co2-c|co2|c)\s*\)", r" \1", text)
     return " ".join(text.split())
 
 
@@ -53,7 +57,9 @@ def rate_factor(label) -> float | None:
         A unit as a file writes it: an amount (mol, mmol, µmol or umol; g, mg, µg or
         kg of CO2 or of C), per square metre, per second, minute, hour or day, in the
         notations of logger units lines ("g CO2 m-2 d-1", "gC/m2/d", "mmol m^-2 s^-1",
-        "µmol.m-2.h-1").
+        "µmol.m-2.h-1"); the species may be bracketed ("umol(CO2)") or written "CO2-C"
+        (a mass of carbon), and the time base may carry a count ("gC m-2 30min-1": per
+        30 minutes).
 
     Returns
     -------
@@ -90,7 +96,11 @@ def rate_factor(label) -> float | None:
         micromoles = amount / _MOLAR_MASS[species] * 1e6
     else:
         micromoles = amount * 1e6
-    return micromoles / _SECONDS[found["time"]]
+    # a count before the time base: per 30 minutes, an amount per record ("gC m-2 30min-1")
+    count = float(found["count"]) if found["count"] else 1.0
+    if count <= 0.0:
+        return None
+    return micromoles / (count * _SECONDS[found["time"]])
 
 
 def unreadable_rate_note(name: str, column, label: str, where: str, read_scale: float,

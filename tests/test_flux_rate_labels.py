@@ -105,3 +105,24 @@ def test_the_example_labelled_in_its_own_unit_is_quiet(tmp_path):
     for label in ("umol m-2 s-1", "µmol CO2 m-2 s-1"):
         _, report = _example(tmp_path, name_label=label)
         assert not any("labelled" in text for text in report.warnings)
+
+
+@pytest.mark.parametrize("label, expected", [
+    # an amount per record of 30 minutes (1800 s; BIPM 2019 (m)), as logger headers write it
+    ("gC m-2 30min-1", 1e6 / CARBON / 1800.0),
+    ("g CO2 m-2 30 min-1", 1e6 / CO2 / 1800.0),
+    # "CO2-C": the carbon of CO2, a mass of C (common practice)
+    ("g CO2-C m-2 d-1", 1e6 / CARBON / DAY),
+    ("gCO2-C/m2/d", 1e6 / CARBON / DAY),
+    # the species in brackets after the amount
+    ("mg (CO2) m-2 s-1", 1e3 / CO2),
+    ("umol(CO2) m-2 s-1", 1.0),
+])
+def test_labels_with_a_count_a_carbon_of_co2_or_a_bracketed_species(label, expected):
+    """Before review40 these read as no CO2 flux unit (None): NEE labelled "gC m-2
+    30min-1" and read as µmol m-2 s-1 (every flux 46 times too small) passed without a
+    word."""
+    assert rate_factor(label) == pytest.approx(expected, rel=1e-12)
+    read = "'µmol m-2 s-1' (no [input.units] nee: its default)"
+    note = unreadable_rate_note("nee", "Fc", label, "its name", 1.0, read)
+    assert (note is None) == (expected == 1.0)
