@@ -62,7 +62,9 @@ def foreign_days(values, starts, minimum: float, maximum: float, *, column: str,
         The warning, naming the days, the values beyond the range and the values within
         it that enter as NEE; None where fewer than :data:`MIN_DAYS` calendar days hold
         :data:`DAY_SHARE` of their present values (and :data:`MIN_PER_DAY` or more) beyond
-        the range.
+        the range. A value repeated exactly that makes up half or more of the values
+        beyond the range (3 times or more) is taken as an undeclared missing-data code:
+        its records count as missing.
 
     References
     ----------
@@ -73,6 +75,14 @@ def foreign_days(values, starts, minimum: float, maximum: float, *, column: str,
     present = np.isfinite(values)
     with np.errstate(invalid="ignore"):
         outside = present & ((values < minimum) | (values > maximum))
+    # an undeclared missing-data code (-6999, 9999) is one number repeated exactly, not
+    # a quantity: the reader names it as a code where it makes up half of the values
+    # beyond the range and occurs 3 times or more (io._undeclared_code); its records are
+    # missing, not days of another quantity (review40)
+    codes, counts = np.unique(values[outside], return_counts=True)
+    if counts.size and counts.max() >= 3 and counts.max() >= 0.5 * outside.sum():
+        coded = values == codes[int(np.argmax(counts))]
+        present, outside = present & ~coded, outside & ~coded
     if outside.sum() < MIN_DAYS * MIN_PER_DAY:
         return None
     norm = pd.DatetimeIndex(starts).normalize()

@@ -121,6 +121,14 @@ def clock_and_preflight(frame, site, config, interval, geometry, is_night, scree
 FLAG_CAUSE_SHARE = 0.5
 
 
+#: Stages whose fatal findings are a want of measured NEE records (the nighttime E0 and
+#: Rref windows, the daytime light-response windows, :mod:`fluxpart.preflight`): the
+#: refusals a flag rejecting most records explains. A constant or wind-speed u*, a
+#: constant driver or a temperature without values are not.
+NEE_SHORTAGE_STAGES = ("nighttime partitioning (E0)", "nighttime partitioning (Rref)",
+                       "daytime partitioning (light response)")
+
+
 def flag_cause(frame) -> str | None:
     """The site flag named as the cause of a shortage of measured NEE, or None.
 
@@ -169,7 +177,8 @@ def refuse(verdict, findings, config, frame=None) -> None:
         Settings; ``clock_check = "refuse"`` makes a clock problem stop the run.
     frame : pandas.DataFrame, optional
         The record: where its site flag rejects most records with an NEE value, a
-        fatal finding's refusal ends with :func:`flag_cause`.
+        refusal with a fatal finding of :data:`NEE_SHORTAGE_STAGES` ends with
+        :func:`flag_cause`.
 
     Raises
     ------
@@ -188,7 +197,10 @@ def refuse(verdict, findings, config, frame=None) -> None:
     if clock_problems:
         raise ConfigError(f"{text} (to process anyway, set [processing] clock_check = "
                           "\"warn\", in Python Config(clock_check=\"warn\"))")
-    cause = flag_cause(frame)
+    # the flag is named only beside a want of measured NEE: a constant u* or a wind speed
+    # mapped as u* was told "likely why these stages lack measured NEE" (review40)
+    cause = (flag_cause(frame) if any(finding.fatal and finding.stage in NEE_SHORTAGE_STAGES
+                                      for finding in findings) else None)
     text = text if cause is None else f"{text}; {cause}"
     raise InsufficientDataError(f"{text} (fluxpart check lists every problem)")
 

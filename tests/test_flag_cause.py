@@ -64,3 +64,27 @@ def test_the_example_with_its_flag_inverted_is_refused_naming_the_flag(tmp_path)
     assert "the site flag (nee_flag) rejects" in message
     assert "check [input] flag_accept" in message
     assert message.endswith("(fluxpart check lists every problem)")
+
+
+def test_the_flag_is_named_only_beside_a_want_of_measured_nee():
+    """Known-truth recovery on invented records: a flag rejecting 99 % of the records
+    with NEE, and a run refused for a constant u* alone (the u* filter stage; a constant
+    reading is a stuck sensor, common practice). Before review40 the refusal ended "likely
+    why these stages lack measured NEE" though no stage lacked it; now the flag is named
+    only where a fatal finding is a want of night or day NEE windows."""
+    from fluxpart.config import Config
+    from fluxpart.preflight import Finding
+    from fluxpart.screening_stage import NEE_SHORTAGE_STAGES, refuse
+
+    rng = np.random.default_rng(1)
+    frame = pd.DataFrame({"nee": rng.normal(0.0, 3.0, 1000),
+                          "nee_flag": np.where(np.arange(1000) < 10, 0.0, 2.0)})
+    ustar = Finding("u* filter", "ustar is constant (1000 values, all 0.3)", True)
+    with pytest.raises(InsufficientDataError) as caught:
+        refuse(None, [ustar], Config(), frame)
+    assert "ustar is constant" in str(caught.value) and "nee_flag" not in str(caught.value)
+    for stage in NEE_SHORTAGE_STAGES:
+        short = Finding(stage, "too few night records", True)
+        with pytest.raises(InsufficientDataError) as caught:
+            refuse(None, [ustar, short], Config(), frame)
+        assert "rejects 990 of the 1000 records" in str(caught.value)

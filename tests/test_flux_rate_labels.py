@@ -105,3 +105,45 @@ def test_the_example_labelled_in_its_own_unit_is_quiet(tmp_path):
     for label in ("umol m-2 s-1", "µmol CO2 m-2 s-1"):
         _, report = _example(tmp_path, name_label=label)
         assert not any("labelled" in text for text in report.warnings)
+
+
+@pytest.mark.parametrize("label, expected", [
+    # an amount per record of 30 minutes (1800 s; BIPM 2019 (m)), as logger headers write it
+    ("gC m-2 30min-1", 1e6 / CARBON / 1800.0),
+    ("g CO2 m-2 30 min-1", 1e6 / CO2 / 1800.0),
+    # "CO2-C": the carbon of CO2, a mass of C (common practice)
+    ("g CO2-C m-2 d-1", 1e6 / CARBON / DAY),
+    ("gCO2-C/m2/d", 1e6 / CARBON / DAY),
+    # the species in brackets after the amount
+    ("mg (CO2) m-2 s-1", 1e3 / CO2),
+    ("umol(CO2) m-2 s-1", 1.0),
+])
+def test_labels_with_a_count_a_carbon_of_co2_or_a_bracketed_species(label, expected):
+    """Before review40 these read as no CO2 flux unit (None): NEE labelled "gC m-2
+    30min-1" and read as µmol m-2 s-1 (every flux 46 times too small) passed without a
+    word."""
+    assert rate_factor(label) == pytest.approx(expected, rel=1e-12)
+    read = "'µmol m-2 s-1' (no [input.units] nee: its default)"
+    note = unreadable_rate_note("nee", "Fc", label, "its name", 1.0, read)
+    assert (note is None) == (expected == 1.0)
+
+
+def test_a_mass_rate_without_its_species_is_named_with_both_factors(tmp_path):
+    """Known-truth recovery: a mass rate without its species ("mg/m2/s", "g/m2/d") had
+    no factor and no note before review40: the grassland example's NEE in g CO2 m-2 d-1
+    under a units line "g/m2/d" was read as µmol m-2 s-1 (every flux 3.8 times too
+    large) without a word. Now the label is named with the factors of CO2 and of C
+    (molar masses 44.01 and 12.011 g mol-1, IUPAC (m)); read as either, it is quiet."""
+    read = "'µmol m-2 s-1' (no [input.units] nee: its default)"
+    note = unreadable_rate_note("nee", "Fc", "mg/m2/s", "its name", 1.0, read)
+    assert note is not None
+    assert f"{1e3 / CO2:.6g} for CO2" in note and f"{1e3 / CARBON:.6g} for C" in note
+    assert "22.7 times too small" in note and "83.3 times too small" in note
+    assert unreadable_rate_note("nee", "Fc", "mg m-2 s-1", "its name", 1e3 / CO2,
+                                read) is None
+    assert unreadable_rate_note("nee", "Fc", "W m-2", "its name", 1.0, read) is None
+    # through the reader: NEE in g CO2 m-2 d-1 under "g/m2/d" (mg CO2 m-2 s-1 values are
+    # refused as too small by the magnitude check before any label is read)
+    _, report = _example(tmp_path, units_cell="g/m2/d", factor=1.0 / (1e6 / CO2 / DAY))
+    named = [text for text in report.warnings if "labelled 'g/m2/d' by the units line" in text]
+    assert len(named) == 1 and "3.8 times too large (a mass of CO2)" in named[0]

@@ -122,3 +122,24 @@ def test_a_callers_frame_with_heat_flux_days_is_named_as_the_reader_names_a_file
     assert len(texts) == 1
     assert texts[0].startswith("frame (process() takes canonical units): nee: column 'nee'")
     assert "days from 2021-07-10 to 2021-07-19" in texts[0]
+
+
+def test_an_undeclared_missing_code_on_outage_days_is_no_foreign_quantity():
+    """Known-truth recovery on invented data: outages of a whole day written with a
+    logger's missing-data code (-6999, not in [input] missing) put every record of those
+    days beyond the range, yet they hold no quantity at all: one number repeated exactly
+    is a code (the reader's own rule, io._undeclared_code, names it), not days of heat
+    flux. The days are not named (before review40: "2 day(s) ... another quantity");
+    latent heat on three other days still is, its in-range values counted without the
+    coded records."""
+    stamps, rg, nee = _record()
+    outage = (stamps >= "2021-06-03") & (stamps < "2021-06-05")
+    nee[outage] = -6999.0
+    assert foreign_days(nee, stamps, LOW, HIGH, column="c", unit="u") is None
+    heat = (stamps >= "2021-06-10") & (stamps < "2021-06-13")
+    nee[heat] = 0.45 * rg[heat] - 20.0
+    text = foreign_days(nee, stamps, LOW, HIGH, column="c", unit="u")
+    assert text is not None and "2021-06-10, 2021-06-11, 2021-06-12" in text
+    assert "2021-06-03" not in text
+    beyond = int(np.sum(nee[heat] > HIGH))
+    assert f"other {int(heat.sum()) - beyond} value(s)" in text
