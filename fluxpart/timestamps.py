@@ -978,7 +978,42 @@ def _other_format(stamp: str, time_format: str) -> str:
             and parses(time_format.replace("%H:%M", "%H:%M:%S", 1)):
         return ("the stamps carry seconds: time_format = "
                 f"{setting_text(time_format.replace('%H:%M', '%H:%M:%S', 1))}")
+    separated = _other_separators(stamp, time_format)
+    if separated and parses(separated):
+        # layouts33: "2021/01/01 00:30" under "%Y-%m-%d %H:%M" was refused with no hint
+        return ("the stamps separate their fields with other characters than time_format "
+                f"does: time_format = {setting_text(separated)}")
     return ""
+
+
+_FORMAT_CODE = re.compile(r"%[A-Za-z]")
+#: A separator between two fields of a stamp: a run of characters other than letters
+#: and digits, or ISO 8601's "T" between date and time
+_STAMP_SEPARATOR = re.compile(r"(?<=\d)T(?=\d)|[^0-9A-Za-z]+")
+
+
+def _other_separators(stamp: str, time_format: str) -> str:
+    """`time_format` with its separators replaced by the stamp's, in order, else ''.
+
+    Only for a format whose codes are each separated by literal characters (none
+    before the first or after the last), and a stamp with as many separators, some of
+    them others than the format's ("2021/01/01 00:30" under "%Y-%m-%d %H:%M").
+
+    References
+    ----------
+    ISO 8601-1:2019 writes dates with "-", times with ":" and "T" between them;
+    spreadsheets and loggers use "/", "." and a blank as well (common practice).
+    """
+    codes = _FORMAT_CODE.findall(time_format)
+    pieces = _FORMAT_CODE.split(time_format)
+    inner = pieces[1:-1]
+    if len(codes) < 2 or pieces[0] or pieces[-1] or not all(inner):
+        return ""
+    found = _STAMP_SEPARATOR.findall(stamp.strip())
+    if len(found) != len(inner) or found == inner:
+        return ""
+    return "".join(code + separator for code, separator in zip(codes, found + [""],
+                                                                  strict=True))
 
 
 _ENGLISH_MONTHS = ("jan", "feb", "mar", "apr", "may", "jun", "jul", "aug", "sep", "oct",
@@ -1200,6 +1235,15 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     unpadded = _unpadded_compact_message(text, time_format)
     if unpadded:
         first = unpadded[0]
+        # layouts33: Unix seconds ('1609457400', 10 digits) under "%Y%m%d%H%M" (12) were
+        # named as fields without their leading zero; a column of numbers counting time
+        # in steps of 30 or 60 minutes is that clock
+        clock = _numeric_clock(text)
+        if clock:
+            raise TimestampError(
+                f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
+                f"{text.iloc[first]!r}, which does not match time_format = "
+                f"{setting_text(time_format)}; {clock}")
         raise TimestampError(
             f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
             f"{text.iloc[first]!r}, {unpadded[1]}")
