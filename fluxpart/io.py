@@ -1022,6 +1022,15 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             source_of["rg"] = f"{mapping['ppfd']} (ppfd / {PPFD_PER_RG:.2f} µmol J-1)"
         else:
             warnings.append("ppfd: mapped together with rg; rg is used and ppfd ignored")
+    if "rg" in converted and len(set(combined["sources"])) > 1:
+        # layouts33: a first file of start marks before files of end marks was read one
+        # record early without a word (one record inserted at the join)
+        from .file_joins import boundary_gap_message
+
+        joined = boundary_gap_message(starts, combined["sources"], converted["rg"],
+                                      potential, interval_minutes)
+        if joined:
+            raise TimestampError(joined)
     flag_rejected, flag_rejected_with_nee = 0, None
     if flag_columns:
         flags = [combined["values"][_flag_key(column)] for column in flag_columns]

@@ -191,3 +191,76 @@ def test_a_flag_of_the_other_scale_is_refused_naming_both_readings(tmp_path):
     records.to_csv(tmp_path / "b.csv", index=False)
     _, report = _read(tmp_path / "b.csv", columns=columns)
     assert any(w.startswith("nee_flag: 864 of 960 records (90%)") for w in report.warnings)
+
+
+# ------------------------------------- a record left empty at the join of two files
+def _sunny_files(tmp_path, first_marks: str, drop_last_of_first: bool = False):
+    """Two invented files of a June tower, 10 and 20 days: Rg 0.7 of the potential
+    radiation of each interval (a clear sky, known truth), the first file stamped at
+    `first_marks`, the second at interval ends."""
+    from fluxpart.solar import potential_radiation
+
+    starts, records = _tower(periods=48 * 30)
+    records["sw"] = np.round(0.7 * potential_radiation(starts, SITE.latitude,
+                                                       SITE.longitude, SITE.utc_offset,
+                                                       interval_minutes=30), 1)
+    first, second = records.iloc[:480].copy(), records.iloc[480:].copy()
+    if first_marks == "start":
+        first["stamp"] = starts[:480].strftime(FORMAT)
+    if drop_last_of_first:
+        first = first.iloc[:-1]
+    first.to_csv(tmp_path / "a.csv", index=False)
+    second.to_csv(tmp_path / "b.csv", index=False)
+    return [tmp_path / "a.csv", tmp_path / "b.csv"], starts, records
+
+
+def test_a_first_file_of_start_marks_before_end_marks_is_refused_naming_both(tmp_path):
+    """A 10-day file stamped at interval starts before a file of end marks, read with
+    time_marks = "end": the join leaves one stamp empty, and the first file's records were
+    read 30 minutes early without a word (the monthly clock check passed: a third of the
+    month). Now refused: Rg in the first file comes 30 minutes earlier against the sun
+    than in the second, so both readings (the marks changed, or a record was lost and
+    the clock set) are named (invented known truth: Rg 0.7 of the potential)."""
+    paths, starts, _ = _sunny_files(tmp_path, first_marks="start")
+    with pytest.raises(TimestampError) as caught:
+        _read(paths)
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    hole = starts[479]          # the first file's last record, read one record early
+    assert (f"input files {str(paths[0])!r} and {str(paths[1])!r} leave the record of "
+            f"{hole:%Y-%m-%d %H:%M} (interval start) between them empty") in message
+    assert "-30 min against the sun" in message and "+0 min in" in message
+    assert "mark the other end of the interval" in message
+    assert "the logger lost that record" in message
+
+
+def test_a_record_lost_at_the_join_of_files_of_one_convention_is_read(tmp_path):
+    """The same files, both of end marks, the first lacking its last record (lost at
+    the change of file): Rg sits where the sun is in both, so the record is read as
+    one missing interval, the others at their own starts (known truth)."""
+    paths, starts, records = _sunny_files(tmp_path, first_marks="end",
+                                          drop_last_of_first=True)
+    frame, _ = _read(paths)
+    pd.testing.assert_index_equal(frame.index, pd.DatetimeIndex(starts, name="time"))
+    assert np.isnan(frame["rg"].iloc[479])
+    np.testing.assert_array_equal(frame["rg"].to_numpy()[480:],
+                                  records["sw"].to_numpy()[480:])
+
+
+def test_the_lag_of_rg_behind_the_sun_is_recovered():
+    """Rg built from the potential radiation of stamps k minutes off gives a lag of k
+    (k = -30, 0, +30), within 3 minutes (the interval's mean against the centre of its
+    half hour); days with too few records are not judged (known truth)."""
+    from fluxpart.file_joins import radiation_lag_minutes
+    from fluxpart.solar import potential_radiation
+
+    starts = pd.date_range("2021-06-01", periods=48 * 10, freq="30min")
+    sun = potential_radiation(starts, 49.3, 10.2, 1.0, interval_minutes=30)
+    for lag in (-30, 0, 30):
+        rg = 0.7 * potential_radiation(starts - pd.Timedelta(minutes=lag), 49.3, 10.2,
+                                       1.0, interval_minutes=30)
+        found, days = radiation_lag_minutes(starts, rg, sun, 30)
+        assert days == 10 and abs(found - lag) <= 3
+    holed = np.where(np.arange(len(starts)) % 48 < 30, np.nan, sun)
+    assert radiation_lag_minutes(starts, holed, sun, 30) == (pytest.approx(np.nan,
+                                                                           nan_ok=True), 0)
