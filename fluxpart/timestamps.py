@@ -666,6 +666,42 @@ def _serial_date_column(text: pd.Series, time_columns) -> str:
             "time_format to match")
 
 
+def _seconds_of_day(text: pd.Series, time_format: str) -> str:
+    """Name a time field that counts the seconds of the day ("2021-06-01 3600" for
+    01:00), or "".
+
+    The test: a format whose time is ``%H%M`` at its end, and the last field of every
+    stamp a whole number from 0 to 86400 in steps of whole minutes, some of them above
+    2400 (no hhmm clock reads them) and the first step between stamps 30 or 60 minutes
+    as seconds. Such stamps are refused rather than read (layouts33: refused with no
+    cause): the seconds are plain to convert in a copy.
+
+    References
+    ----------
+    A day holds 86,400 seconds (SI; common practice); loggers write the time of day
+    as seconds since midnight beside a date (common practice).
+    """
+    if not time_format.endswith("%H%M"):
+        return ""
+    last = text.str.strip().str.rsplit(n=1).str[-1]
+    numbers = pd.to_numeric(last, errors="coerce").to_numpy(dtype=float)
+    if numbers.size < 3 or not np.isfinite(numbers).all():
+        return ""
+    if (numbers != np.round(numbers)).any() or numbers.min() < 0 or numbers.max() > 86400 \
+            or numbers.max() <= 2400 or (numbers % 60).any():
+        return ""
+    steps = np.diff(numbers)
+    steps = steps[steps > 0]
+    if steps.size == 0 or np.median(steps) not in (1800.0, 3600.0):
+        return ""
+    hours, seconds = divmod(int(numbers[np.argmax(numbers > 2400)]), 3600)
+    example = last.iloc[int(np.argmax(numbers > 2400))]
+    return (f"the time field counts the seconds of the day ({example!r} is "
+            f"{hours:02d}:{seconds // 60:02d}), not hours and minutes, which fluxpart does "
+            "not read: write it as hh:mm in a copy of the file (seconds / 3600 hours) and "
+            "set [input] time_format to match")
+
+
 def _date_part(time_format: str) -> str | None:
     """The date fields of a "date, separator, time" format ("%Y-%m-%d" of "%Y-%m-%d %H:%M"),
     or None where the format has no such split (compact or time-first formats)."""
@@ -1348,6 +1384,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = "; " + _numeric_clock(text)
         elif _serial_date_column(text, time_columns):
             hint = "; " + _serial_date_column(text, time_columns)
+        elif _seconds_of_day(text, time_format):
+            hint = "; " + _seconds_of_day(text, time_format)
         elif _finer_stamp(text.iloc[first], time_format):
             hint = "; " + _finer_stamp(text.iloc[first], time_format)
         elif _fraction_hint(text[failed], time_format):

@@ -23,7 +23,7 @@ from test_robustness_layouts18 import _tower
 from fluxpart.errors import DuplicateTimestampError, ImplausibleValueError, TimestampError
 from fluxpart.io import read_table
 from fluxpart.site import Site
-from fluxpart.timestamps import _other_separators
+from fluxpart.timestamps import _other_separators, _seconds_of_day
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
 MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
@@ -264,3 +264,25 @@ def test_the_lag_of_rg_behind_the_sun_is_recovered():
     holed = np.where(np.arange(len(starts)) % 48 < 30, np.nan, sun)
     assert radiation_lag_minutes(starts, holed, sun, 30) == (pytest.approx(np.nan,
                                                                            nan_ok=True), 0)
+
+
+# ------------------------------------------------------ seconds of the day as the time
+def test_a_time_field_of_seconds_of_the_day_is_named(tmp_path):
+    """A date column beside the time of day as seconds since midnight ('3600' for 01:00;
+    a day holds 86,400 s) under "%Y-%m-%d %H%M" was refused as stamps that fail to parse,
+    with no cause (some, '1800', read as 18:00). Now the seconds are named with the
+    first one beyond any hhmm clock converted."""
+    starts, records = _tower(periods=48 * 3)
+    ends = starts + pd.Timedelta(minutes=30)
+    records.insert(0, "date", ends.strftime("%Y-%m-%d"))
+    records["stamp"] = ends.hour * 3600 + ends.minute * 60
+    records.to_csv(tmp_path / "a.csv", index=False)
+    with pytest.raises(TimestampError) as caught:
+        _read(tmp_path / "a.csv", time_column=["date", "stamp"], time_format="%Y-%m-%d %H%M")
+    message = str(caught.value)
+    assert len(message.splitlines()) == 1
+    # 01:00 is 3600 s, the first count above 2400 (the largest hhmm)
+    assert "the time field counts the seconds of the day ('3600' is 01:00)" in message
+    # an hhmm column (its counts at most 2400) is no such field
+    assert _seconds_of_day(pd.Series(["2021-06-01 0030", "2021-06-01 0100",
+                                      "2021-06-01 2400"]), "%Y-%m-%d %H%M") == ""
