@@ -1024,7 +1024,8 @@ def _other_format(stamp: str, time_format: str) -> str:
 
 _FORMAT_CODE = re.compile(r"%[A-Za-z]")
 #: A separator between two fields of a stamp: a run of characters other than letters
-#: and digits, or ISO 8601's "T" between date and time
+#: and digits, or ISO 8601's "T" between date and time (left to _text_around_stamps,
+#: which checks every stamp)
 _STAMP_SEPARATOR = re.compile(r"(?<=\d)T(?=\d)|[^0-9A-Za-z]+")
 
 
@@ -1046,8 +1047,8 @@ def _other_separators(stamp: str, time_format: str) -> str:
     if len(codes) < 2 or pieces[0] or pieces[-1] or not all(inner):
         return ""
     found = _STAMP_SEPARATOR.findall(stamp.strip())
-    if len(found) != len(inner) or found == inner:
-        return ""
+    if len(found) != len(inner) or found == inner or "T" in found:
+        return ""                  # ISO's "T" alone is named by _text_around_stamps
     return "".join(code + separator for code, separator in zip(codes, found + [""],
                                                                   strict=True))
 

@@ -152,7 +152,8 @@ def test_stamps_with_other_separators_name_the_format_that_reads_them(tmp_path):
 
 @pytest.mark.parametrize(("stamp", "time_format", "expected"), [
     ("2021/06/01 00:30", "%Y-%m-%d %H:%M", "%Y/%m/%d %H:%M"),
-    ("2021-06-01T00:30", "%Y-%m-%d %H:%M", "%Y-%m-%dT%H:%M"),     # ISO 8601's T (m)
+    ("2021-06-01T00:30", "%Y-%m-%d %H:%M", ""),      # ISO 8601's T (m): named elsewhere
+    ("2021/06/01T00:30", "%Y-%m-%d %H:%M", ""),
     ("01.06.2021 00:30", "%d/%m/%Y %H:%M", "%d.%m.%Y %H:%M"),
     ("2021-06-01 00:30", "%Y-%m-%d %H:%M", ""),                    # the same separators
     ("202106010030", "%Y%m%d%H%M", ""),                            # no separators at all
