@@ -98,6 +98,7 @@ from .timestamps import (
     parse_stamps,
 )
 from .unit_checks import (
+    _FLAG_REFUSE,
     IMPLAUSIBLE_SHARE,
     implausible_message,
     missing_code_hint,
@@ -1022,6 +1023,15 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             source_of["rg"] = f"{mapping['ppfd']} (ppfd / {PPFD_PER_RG:.2f} µmol J-1)"
         else:
             warnings.append("ppfd: mapped together with rg; rg is used and ppfd ignored")
+    if "rg" in converted and len(set(combined["sources"])) > 1:
+        # layouts33: a first file of start marks before files of end marks was read one
+        # record early without a word (one record inserted at the join)
+        from .file_joins import boundary_gap_message
+
+        joined = boundary_gap_message(starts, combined["sources"], converted["rg"],
+                                      potential, interval_minutes)
+        if joined:
+            raise TimestampError(joined)
     flag_rejected, flag_rejected_with_nee = 0, None
     if flag_columns:
         flags = [combined["values"][_flag_key(column)] for column in flag_columns]
@@ -1060,6 +1070,14 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                 f"{' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)}; "
                 f"the flags hold {[f'{v:g}' for v in flag_values]}: set [input] flag_accept to "
                 "the values that mean a good record (or remove nee_flag from [input.columns])")
+        if judged >= 48 and flag_rejected > _FLAG_REFUSE * judged:
+            # layouts33: a flag of the other scale (2 good, 0 bad) under flag_accept = [0]
+            # kept 25 of 17520 records with a warning and the run stopped at the
+            # partitioning, naming missing night records; process() refuses such a
+            # frame's flag (unit_checks.frame_refusal), the reader now does too
+            raise ImplausibleValueError(_flag_scale_message(
+                [combined["values"][_flag_key(c)] for c in flag_columns], flag_columns,
+                flag_accept, flag_rejected, judged))
 
     order = [name for name in VARIABLES if name in converted]
     frame = pd.DataFrame({name: converted[name].astype(np.float64) for name in order},
@@ -3807,6 +3825,115 @@ def _boundary_shift(parts: list, stamp: pd.Timestamp) -> str:
     return ""
 
 
+def _flag_scale_message(flags: list, flag_columns: list, flag_accept, rejected: int,
+                        judged: int) -> str:
+    """The refusal where the site flag rejects nearly every record, naming both readings.
+
+    A flag of the other scale (2 or 1 for a good record, 0 for a bad one) under
+    ``flag_accept = [0]`` keeps the bad records only; a site whose own checks reject
+    nearly every record has no budget to give, since towers keep about 65 % of their
+    records in all (Falge et al. 2001 (m)). Either way the setting decides, so the
+    refusal names each flag value with its count.
+
+    Parameters
+    ----------
+    flags : list of numpy.ndarray
+        The flag columns' values as read [-].
+    flag_columns : list of str
+        Their names in the file.
+    flag_accept : sequence of float
+        ``[input] flag_accept`` [-].
+    rejected, judged : int
+        Records the flags reject, and records with a flag [-].
+
+    Returns
+    -------
+    str
+        The one-line refusal.
+
+    References
+    ----------
+    Falge, E., et al. (2001). Gap filling strategies for defensible annual sums of net
+    ecosystem exchange. Agricultural and Forest Meteorology, 107, 43-69 (m).
+    """
+    held = np.concatenate([f[np.isfinite(f)] for f in flags])
+    values, counts = np.unique(held, return_counts=True)
+    order = np.argsort(-counts, kind="stable")[:6]
+    shown = ", ".join(f"{values[i]:g} in {counts[i]}" for i in order)
+    return (f"nee_flag: {rejected} of {judged} records ({rejected / judged:.1%}) are rejected "
+            f"by {' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)} "
+            f"(the flags hold {shown} records): either flag_accept names the values of bad "
+            "records (a flag of the other scale, a higher value for a better record), or the "
+            "site's own checks reject nearly every record, which leaves no budget (towers "
+            "keep about 65 % of their records); set [input] flag_accept to the values that "
+            "mean a good record")
+
+
+def _boundary_marks(parts: list, stamp: pd.Timestamp) -> str:
+    """The two readings where consecutive files share one stamp only, else ``""``.
+
+    The last stamp of one file is the first of the next, and no other stamp of either is
+    in the other. Where the convention of the stamps changed between the files (a logger
+    program or export changed from end to start marks), the two rows are two records,
+    and every record of one side sits one record off against the other's; where a
+    download rewrote the record it was cut in, they are one record written twice. The
+    refusal said "remove one copy of the overlap" (after which one side is read one
+    record off without a word) or, where one row lacks NEE, named two loggers' files
+    joined by stamp. :func:`_boundary_shift` names the file where a record left empty
+    at its other end shows which side changed; this names both readings where none does
+    (the change persists to the record's end). At midnight the calendar adds what each
+    file's stamps read as: its last day ending at 24:00 (end marks), its first day
+    starting at 00:00 (start marks).
+
+    Parameters
+    ----------
+    parts : list of dict
+        The files read (``"source"``, ``"stamps"``).
+    stamp : pandas.Timestamp
+        The first stamp that disagrees.
+
+    Returns
+    -------
+    str
+        The fix naming both files, both readings and the step [minutes].
+
+    References
+    ----------
+    Loggers stamp a record at the start or end of its averaging interval, and a file of
+    whole days so stamped runs 00:00 .. 23:30 or 00:30 .. 24:00 (common practice).
+    """
+    ending, beginning = [], []
+    for part in parts:
+        own = pd.DatetimeIndex(part["stamps"])
+        if len(own) < 2:
+            continue
+        if own[-1] == stamp and own[0] != stamp:
+            ending.append((part, own))
+        elif own[0] == stamp and own[-1] != stamp:
+            beginning.append((part, own))
+    if len(ending) != 1 or len(beginning) != 1:
+        return ""
+    (first, own_a), (second, own_b) = ending[0], beginning[0]
+    if own_a.intersection(own_b).size != 1:
+        return ""
+    step = _median_step(own_b.to_numpy())
+    if step is None:
+        return ""
+    a, b = first["source"], second["source"]
+    calendar = ""
+    if stamp == stamp.normalize():
+        day = (stamp - pd.Timedelta(days=1)).date()
+        calendar = (f" (midnight: the first ends {day} at 24:00, as end marks do, the "
+                    f"second begins {stamp.date()} at 00:00, as start marks do)")
+    return (f"{a!r} and {b!r} share this one stamp, the last of the first and the first "
+            f"of the second{calendar}: either the stamps mark the other end of the interval "
+            "from the second on (a logger program or export changed), so the two rows are two "
+            f"records and every record on one side is read one record ({step:g} minutes) "
+            "off, or the two rows are one record written twice (a download rewrote it); "
+            "where the marks changed, give the files one convention in a copy (the one "
+            "[input] time_marks names), else remove one of the two rows")
+
+
 def _rounding_only(stamps: np.ndarray, sources: np.ndarray, values: dict,
                    names: list) -> tuple | None:
     """``(coarse file, fine file)`` where every repeated stamp's values differ only by
@@ -3903,7 +4030,8 @@ def _combine(parts: list) -> dict:
             if sources[a] != sources[b]:
                 fix = (_other_step_overlap(parts, sources[a], sources[b])
                        or _shifted_overlap(parts, sources[a], sources[b])
-                       or _boundary_shift(parts, pd.Timestamp(stamps[a])) or fix)
+                       or _boundary_shift(parts, pd.Timestamp(stamps[a]))
+                       or _boundary_marks(parts, pd.Timestamp(stamps[a])) or fix)
                 rounded = _rounding_only(stamps, sources, values, names)
                 if rounded:
                     fix = (f"every such value of {rounded[0]!r} is that of {rounded[1]!r} "

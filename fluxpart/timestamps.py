@@ -666,6 +666,42 @@ def _serial_date_column(text: pd.Series, time_columns) -> str:
             "time_format to match")
 
 
+def _seconds_of_day(text: pd.Series, time_format: str) -> str:
+    """Name a time field that counts the seconds of the day ("2021-06-01 3600" for
+    01:00), or "".
+
+    The test: a format whose time is ``%H%M`` at its end, and the last field of every
+    stamp a whole number from 0 to 86400 in steps of whole minutes, some of them above
+    2400 (no hhmm clock reads them) and the first step between stamps 30 or 60 minutes
+    as seconds. Such stamps are refused rather than read (layouts33: refused with no
+    cause): the seconds are plain to convert in a copy.
+
+    References
+    ----------
+    A day holds 86,400 seconds (SI; common practice); loggers write the time of day
+    as seconds since midnight beside a date (common practice).
+    """
+    if not time_format.endswith("%H%M"):
+        return ""
+    last = text.str.strip().str.rsplit(n=1).str[-1]
+    numbers = pd.to_numeric(last, errors="coerce").to_numpy(dtype=float)
+    if numbers.size < 3 or not np.isfinite(numbers).all():
+        return ""
+    if (numbers != np.round(numbers)).any() or numbers.min() < 0 or numbers.max() > 86400 \
+            or numbers.max() <= 2400 or (numbers % 60).any():
+        return ""
+    steps = np.diff(numbers)
+    steps = steps[steps > 0]
+    if steps.size == 0 or np.median(steps) not in (1800.0, 3600.0):
+        return ""
+    hours, seconds = divmod(int(numbers[np.argmax(numbers > 2400)]), 3600)
+    example = last.iloc[int(np.argmax(numbers > 2400))]
+    return (f"the time field counts the seconds of the day ({example!r} is "
+            f"{hours:02d}:{seconds // 60:02d}), not hours and minutes, which fluxpart does "
+            "not read: write it as hh:mm in a copy of the file (seconds / 3600 hours) and "
+            "set [input] time_format to match")
+
+
 def _date_part(time_format: str) -> str | None:
     """The date fields of a "date, separator, time" format ("%Y-%m-%d" of "%Y-%m-%d %H:%M"),
     or None where the format has no such split (compact or time-first formats)."""
@@ -1016,7 +1052,43 @@ def _other_format(stamp: str, time_format: str) -> str:
             and parses(time_format.replace("%H:%M", "%H:%M:%S", 1)):
         return ("the stamps carry seconds: time_format = "
                 f"{setting_text(time_format.replace('%H:%M', '%H:%M:%S', 1))}")
+    separated = _other_separators(stamp, time_format)
+    if separated and parses(separated):
+        # layouts33: "2021/01/01 00:30" under "%Y-%m-%d %H:%M" was refused with no hint
+        return ("the stamps separate their fields with other characters than time_format "
+                f"does: time_format = {setting_text(separated)}")
     return ""
+
+
+_FORMAT_CODE = re.compile(r"%[A-Za-z]")
+#: A separator between two fields of a stamp: a run of characters other than letters
+#: and digits, or ISO 8601's "T" between date and time (left to _text_around_stamps,
+#: which checks every stamp)
+_STAMP_SEPARATOR = re.compile(r"(?<=\d)T(?=\d)|[^0-9A-Za-z]+")
+
+
+def _other_separators(stamp: str, time_format: str) -> str:
+    """`time_format` with its separators replaced by the stamp's, in order, else ''.
+
+    Only for a format whose codes are each separated by literal characters (none
+    before the first or after the last), and a stamp with as many separators, some of
+    them others than the format's ("2021/01/01 00:30" under "%Y-%m-%d %H:%M").
+
+    References
+    ----------
+    ISO 8601-1:2019 writes dates with "-", times with ":" and "T" between them;
+    spreadsheets and loggers use "/", "." and a blank as well (common practice).
+    """
+    codes = _FORMAT_CODE.findall(time_format)
+    pieces = _FORMAT_CODE.split(time_format)
+    inner = pieces[1:-1]
+    if len(codes) < 2 or pieces[0] or pieces[-1] or not all(inner):
+        return ""
+    found = _STAMP_SEPARATOR.findall(stamp.strip())
+    if len(found) != len(inner) or found == inner or "T" in found:
+        return ""                  # ISO's "T" alone is named by _text_around_stamps
+    return "".join(code + separator for code, separator in zip(codes, found + [""],
+                                                                  strict=True))
 
 
 _ENGLISH_MONTHS = ("jan", "feb", "mar", "apr", "may", "jun", "jul", "aug", "sep", "oct",
@@ -1238,6 +1310,15 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     unpadded = _unpadded_compact_message(text, time_format)
     if unpadded:
         first = unpadded[0]
+        # layouts33: Unix seconds ('1609457400', 10 digits) under "%Y%m%d%H%M" (12) were
+        # named as fields without their leading zero; a column of numbers counting time
+        # in steps of 30 or 60 minutes is that clock
+        clock = _numeric_clock(text)
+        if clock:
+            raise TimestampError(
+                f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
+                f"{text.iloc[first]!r}, which does not match time_format = "
+                f"{setting_text(time_format)}; {clock}")
         raise TimestampError(
             f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
             f"{text.iloc[first]!r}, {unpadded[1]}")
@@ -1342,6 +1423,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = "; " + _numeric_clock(text)
         elif _serial_date_column(text, time_columns):
             hint = "; " + _serial_date_column(text, time_columns)
+        elif _seconds_of_day(text, time_format):
+            hint = "; " + _seconds_of_day(text, time_format)
         elif _finer_stamp(text.iloc[first], time_format):
             hint = "; " + _finer_stamp(text.iloc[first], time_format)
         elif _fraction_hint(text[failed], time_format):
