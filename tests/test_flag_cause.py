@@ -13,7 +13,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart.errors import InsufficientDataError
+from fluxpart.errors import ImplausibleValueError, InsufficientDataError
 from fluxpart.pipeline import process_site_config
 from fluxpart.screening_stage import FLAG_CAUSE_SHARE, flag_cause
 
@@ -49,21 +49,22 @@ def test_the_example_with_its_flag_inverted_is_refused_naming_the_flag(tmp_path)
     """The grassland example (invented site) with its QC flag of the opposite meaning (0
     written for the rejected records, 2 for the good ones): the run stopped naming only
     the partitionings' want of night records ("supply measured night NEE"), not the flag
-    (round mistakes25 left it so); now its error line ends with the flag's share and
-    `flag_accept`."""
+    (round mistakes25 left it so). Since round layouts33 the reader refuses a flag that
+    rejects more than 95 % of the records before any stage runs, naming the flag's share
+    and `flag_accept`; `flag_cause` names it where a stage's refusal comes first (a flag
+    rejecting more than half, tested above on a frame)."""
     frame = pd.read_csv(EXAMPLES / "quillmoor_grassland.csv", dtype={"stamp_end": str})
     frame["qc_co2"] = np.where(frame["qc_co2"] == 0, 2, 0)
     frame.to_csv(tmp_path / "quillmoor_grassland.csv", index=False)
     shutil.copy(EXAMPLES / "quillmoor_grassland.toml", tmp_path)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
-        with pytest.raises(InsufficientDataError) as caught:
+        with pytest.raises(ImplausibleValueError) as caught:
             process_site_config(tmp_path / "quillmoor_grassland.toml")
     message = str(caught.value)
-    assert "nighttime partitioning" in message
-    assert "the site flag (nee_flag) rejects" in message
-    assert "check [input] flag_accept" in message
-    assert message.endswith("(fluxpart check lists every problem)")
+    assert message.startswith("nee_flag: ")
+    assert "(99.9%) are rejected by qc_co2" in message
+    assert "set [input] flag_accept" in message
 
 
 def test_the_flag_is_named_only_beside_a_want_of_measured_nee():
