@@ -87,14 +87,18 @@ from .shared_records import day_keys, shared_days
 from .store import (
     PANDAS_ATTRS_KEY,
     atomic_write_bytes,
+    damaged_table,
     file_sha256,
     folder_mode,
+    parquet_source,
     read_table,
     reader_attrs,
     remove_stale,
     require_owner_access,
     set_mode,
+    shortage,
     unreadable,
+    unreadable_table,
     write_table,
 )
 from .worker_match import (
@@ -950,8 +954,6 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
         after rewriting some site folders); the message says to run the batch
         again. Folders of batches before the seal existed are read unchecked.
     """
-    import pyarrow.dataset as ds
-
     if table not in NETWORK_DATASETS:
         raise ConfigError(f"network table {table!r}: expected one of "
                           f"{', '.join(map(repr, NETWORK_DATASETS))}")
@@ -963,16 +965,67 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
     _check_network_seal(Path(out), NETWORK_DATASETS[table], files)
     if not files:
         return pd.DataFrame({"site": pd.Series([], dtype="str")})
-    dataset = ds.dataset([str(f) for f in files], format="parquet",
-                         partitioning=ds.partitioning(pa.schema([("site", pa.string())]),
-                                                      flavor="hive"),
-                         partition_base_dir=str(path))
-    frame = dataset.to_table().to_pandas()
+    frame = _network_frame(files)
     ordered = ["site", *[c for c in frame.columns if c != "site"]]
     frame = frame[ordered].sort_values(["site", _PERIOD_COLUMNS[table]],
                                        kind="stable").reset_index(drop=True)
     frame.attrs = _network_attrs(files[0])
     return frame
+
+
+def _network_frame(files: list[Path]) -> pd.DataFrame:
+    """The site files of one network table as one frame, read on the calling thread.
+
+    The same frame as ``pyarrow.dataset.dataset(files, partitioning=hive).to_table()``
+    gave (the first file's columns, a column another file lacks as nulls, the partition
+    key ``site`` last), without the dataset scanner: it starts pyarrow's I/O pool (7
+    threads here, also with ``use_threads=False``), and under a memory limit a thread the
+    system refuses hung the read for good (``ulimit -v`` 325-475 MB: `batch`'s client
+    never ended) or ended the process before Python could say why (glibc's "cannot
+    allocate memory for thread-local data: ABORT", exit 127, up to 700 MB). Each file is
+    decoded as :func:`fluxpart.store.read_table` decodes a site's tables (faults31).
+
+    Parameters
+    ----------
+    files : list of pathlib.Path
+        ``<dataset>/site=<key>/*.parquet``, in the order the rows are wanted.
+
+    Returns
+    -------
+    pandas.DataFrame
+        The files' rows in order, with ``site`` (the key of each file's folder) last.
+
+    Raises
+    ------
+    ResourceShortage
+        Where the system refused memory or a thread while reading a file.
+    InputFileError
+        Where a file cannot be read or decoded.
+
+    References
+    ----------
+    Apache Arrow documentation, ``pyarrow.parquet.ParquetFile.read`` and
+    ``pyarrow.Table.to_pandas``: ``use_threads=False`` decodes on the calling thread (m).
+    """
+    schema, parts = None, []
+    for file in files:
+        try:
+            with parquet_source(file) as source, pq.ParquetFile(source) as opened:
+                part = opened.read(use_threads=False)
+        except OSError as error:
+            raise shortage(file, error) or unreadable_table(file, error) from None
+        except (pa.ArrowException, ValueError, MemoryError) as error:
+            raise shortage(file, error) or damaged_table(file, error) from None
+        schema = schema or part.schema
+        arrays = [part[f.name].cast(f.type) if f.name in part.column_names
+                  else pa.nulls(len(part), f.type) for f in schema]
+        key = file.parent.name.removeprefix("site=")
+        parts.append(pa.Table.from_arrays([*arrays, pa.array([key] * len(part), pa.string())],
+                                          names=[*schema.names, "site"]))
+    try:
+        return pa.concat_tables(parts).to_pandas(use_threads=False)
+    except (pa.ArrowException, MemoryError) as error:
+        raise shortage(files[0], error) or damaged_table(files[0], error) from None
 
 
 def _network_attrs(path: Path) -> dict:
@@ -1427,8 +1480,11 @@ def _same_record_pairs(outcomes) -> list:
             continue
         directory = Path(outcome.directory)
         try:
-            table = pq.read_table(directory / "timeseries.parquet",
-                                  columns=["time", "nee"]).to_pandas()
+            # on this thread, as store.read_table (a refused thread hung or ended the batch)
+            with parquet_source(directory / "timeseries.parquet") as source, \
+                    pq.ParquetFile(source) as opened:
+                table = opened.read(columns=["time", "nee"], use_threads=False).to_pandas(
+                    use_threads=False)
             hashes[outcome.key] = _input_hashes(directory)
             keys[outcome.key] = day_keys(table["time"].to_numpy(), table["nee"].to_numpy())
         except (FluxpartError, OSError, ValueError, TypeError, KeyError, pa.ArrowException):
