@@ -90,7 +90,6 @@ from .store import (
     damaged_table,
     file_sha256,
     folder_mode,
-    parquet_source,
     read_table,
     reader_attrs,
     remove_stale,
@@ -1009,13 +1008,7 @@ def _network_frame(files: list[Path]) -> pd.DataFrame:
     """
     schema, parts = None, []
     for file in files:
-        try:
-            with parquet_source(file) as source, pq.ParquetFile(source) as opened:
-                part = opened.read(use_threads=False)
-        except OSError as error:
-            raise shortage(file, error) or unreadable_table(file, error) from None
-        except (pa.ArrowException, ValueError, MemoryError) as error:
-            raise shortage(file, error) or damaged_table(file, error) from None
+        part = _table_here(file)
         schema = schema or part.schema
         arrays = [part[f.name].cast(f.type) if f.name in part.column_names
                   else pa.nulls(len(part), f.type) for f in schema]
@@ -1026,6 +1019,33 @@ def _network_frame(files: list[Path]) -> pd.DataFrame:
         return pa.concat_tables(parts).to_pandas(use_threads=False)
     except (pa.ArrowException, MemoryError) as error:
         raise shortage(files[0], error) or damaged_table(files[0], error) from None
+
+
+def _table_here(path: Path, columns=None) -> pa.Table:
+    """The Parquet file `path` (its `columns`, default all) decoded on the calling thread.
+
+    The file's bytes are read by Python and decoded from memory: pyarrow's own reading
+    of a path, an open file or a memory map starts a thread of its I/O pool per file
+    opened (up to 8), a buffer none (measured, pyarrow 26.0).
+
+    Raises
+    ------
+    ResourceShortage
+        Where the system refused memory (or a thread) while reading the file.
+    InputFileError
+        Where the file cannot be read or is no readable Parquet file.
+    """
+    try:
+        data = path.read_bytes()
+    except MemoryError as error:
+        raise shortage(path, error) from None
+    except OSError as error:
+        raise shortage(path, error) or unreadable_table(path, error) from None
+    try:
+        with pq.ParquetFile(pa.BufferReader(data)) as opened:
+            return opened.read(columns=columns, use_threads=False)
+    except (pa.ArrowException, ValueError, OSError, MemoryError) as error:
+        raise shortage(path, error) or damaged_table(path, error) from None
 
 
 def _network_attrs(path: Path) -> dict:
@@ -1480,11 +1500,9 @@ def _same_record_pairs(outcomes) -> list:
             continue
         directory = Path(outcome.directory)
         try:
-            # on this thread, as store.read_table (a refused thread hung or ended the batch)
-            with parquet_source(directory / "timeseries.parquet") as source, \
-                    pq.ParquetFile(source) as opened:
-                table = opened.read(columns=["time", "nee"], use_threads=False).to_pandas(
-                    use_threads=False)
+            # on this thread (a thread the system refused hung or ended the batch's client)
+            table = _table_here(directory / "timeseries.parquet",
+                                columns=["time", "nee"]).to_pandas(use_threads=False)
             hashes[outcome.key] = _input_hashes(directory)
             keys[outcome.key] = day_keys(table["time"].to_numpy(), table["nee"].to_numpy())
         except (FluxpartError, OSError, ValueError, TypeError, KeyError, pa.ArrowException):
