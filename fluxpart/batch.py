@@ -1133,6 +1133,80 @@ def _use_fork_server() -> None:
     from distributed.utils import get_mp_context
 
     get_mp_context().set_forkserver_preload(list(_WORKER_PRELOAD))
+    _start_fork_server_deaf()
+
+
+def _start_fork_server_deaf() -> None:
+    """Start the fork server with Ctrl-C ignored, so that neither it nor the workers it
+    forks raise KeyboardInterrupt.
+
+    A terminal's Ctrl-C reaches every process of the foreground group. The fork server
+    ignores SIGINT only after importing its preload modules
+    (``multiprocessing.forkserver.main``) and a worker only after its Dask preload
+    (:func:`dask_setup`): Ctrl-C in the first 2-4 s of a batch printed the server's
+    KeyboardInterrupt traceback. A signal ignored when a program is executed stays
+    ignored in it, and Python then installs no KeyboardInterrupt handler. This process
+    ignores SIGINT only while the server is spawned (``ensure_running`` returns once it
+    is started, before its imports). A caller's own forkserver processes of the same
+    Python process then ignore Ctrl-C too.
+
+    References
+    ----------
+    POSIX.1-2017, exec: signals set to be ignored by the calling process image are
+    ignored by the new process image (m). Python documentation, ``signal``: SIGINT is
+    translated into KeyboardInterrupt only where its handler was the default at
+    start-up (m).
+    """
+    import signal
+    import threading
+    from multiprocessing import forkserver
+
+    if threading.current_thread() is not threading.main_thread():
+        return
+    previous = signal.signal(signal.SIGINT, signal.SIG_IGN)
+    try:
+        forkserver.ensure_running()
+    finally:
+        signal.signal(signal.SIGINT, signal.default_int_handler if previous is None
+                      else previous)
+
+
+def _leave_unstarted_clusters() -> None:
+    """Leave a local cluster interrupted while starting to end with this process.
+
+    Ctrl-C or SIGTERM while ``LocalCluster`` starts its workers: Dask's exit handler
+    (``distributed.deploy.spec.close_clusters``) then closes the half-started cluster
+    and fails an assertion on a worker still in status ``init`` (a 20-line traceback
+    after the batch's one ``error:`` line), and the fork server, spared the signal
+    (:func:`_start_fork_server_deaf`), went on forking workers for a client already
+    gone, each printing a ``FileNotFoundError`` traceback. The cluster is left out of
+    that handler (``shutdown_on_close``), and the fork server this batch started is
+    stopped; the workers already forked exit when their parent's pipe closes
+    (``distributed.process.AsyncProcess``). Measured: Ctrl-C to the process group at 10
+    offsets from 0.8 to 11 s into a 6-site batch, one line and nothing left running each
+    time (36-49 lines of stderr at 2.5 and 3.5 s before).
+
+    References
+    ----------
+    Dask ``distributed`` source, ``deploy/spec.py`` (``close_clusters`` skips a cluster
+    whose ``shutdown_on_close`` is false) and ``process.py``
+    (``_immediate_exit_when_closed``) (m).
+    """
+    import signal
+    from multiprocessing import forkserver
+
+    from distributed.core import Status
+    from distributed.deploy.spec import SpecCluster
+
+    for cluster in list(SpecCluster._instances):
+        if getattr(cluster, "status", None) != Status.closed:
+            cluster.shutdown_on_close = False
+    pid = getattr(forkserver._forkserver, "_forkserver_pid", None)
+    if pid:
+        try:
+            os.kill(pid, signal.SIGKILL)
+        except OSError:
+            pass
 
 
 def dask_setup(worker) -> None:
@@ -1270,6 +1344,9 @@ def _client(scheduler, workers, sites: int | None = None):
                     f"the local Dask cluster of {workers or _DEFAULT_WORKERS} worker(s) could "
                     f"not start ({type(error).__name__}: {error}); give fewer --workers, or "
                     "raise the limit that ran out (`ulimit -n`, `ulimit -u`)") from None
+            except BaseException:      # Ctrl-C, SIGTERM or SIGHUP while the workers start
+                _leave_unstarted_clusters()
+                raise
     finally:
         for name in set(os.environ) - set(saved):
             del os.environ[name]
