@@ -87,6 +87,7 @@ from .shared_records import day_keys, shared_days
 from .store import (
     PANDAS_ATTRS_KEY,
     atomic_write_bytes,
+    damaged_table,
     file_sha256,
     folder_mode,
     read_table,
@@ -94,7 +95,9 @@ from .store import (
     remove_stale,
     require_owner_access,
     set_mode,
+    shortage,
     unreadable,
+    unreadable_table,
     write_table,
 )
 from .worker_match import (
@@ -950,8 +953,6 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
         after rewriting some site folders); the message says to run the batch
         again. Folders of batches before the seal existed are read unchecked.
     """
-    import pyarrow.dataset as ds
-
     if table not in NETWORK_DATASETS:
         raise ConfigError(f"network table {table!r}: expected one of "
                           f"{', '.join(map(repr, NETWORK_DATASETS))}")
@@ -963,16 +964,88 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
     _check_network_seal(Path(out), NETWORK_DATASETS[table], files)
     if not files:
         return pd.DataFrame({"site": pd.Series([], dtype="str")})
-    dataset = ds.dataset([str(f) for f in files], format="parquet",
-                         partitioning=ds.partitioning(pa.schema([("site", pa.string())]),
-                                                      flavor="hive"),
-                         partition_base_dir=str(path))
-    frame = dataset.to_table().to_pandas()
+    frame = _network_frame(files)
     ordered = ["site", *[c for c in frame.columns if c != "site"]]
     frame = frame[ordered].sort_values(["site", _PERIOD_COLUMNS[table]],
                                        kind="stable").reset_index(drop=True)
     frame.attrs = _network_attrs(files[0])
     return frame
+
+
+def _network_frame(files: list[Path]) -> pd.DataFrame:
+    """The site files of one network table as one frame, read on the calling thread.
+
+    The same frame as ``pyarrow.dataset.dataset(files, partitioning=hive).to_table()``
+    gave (the first file's columns, a column another file lacks as nulls, the partition
+    key ``site`` last), without the dataset scanner: it starts pyarrow's I/O pool (7
+    threads here, also with ``use_threads=False``), and under a memory limit a thread the
+    system refuses hung the read for good (``ulimit -v`` 325-475 MB: `batch`'s client
+    never ended) or ended the process before Python could say why (glibc's "cannot
+    allocate memory for thread-local data: ABORT", exit 127, up to 700 MB). Each file is
+    decoded as :func:`fluxpart.store.read_table` decodes a site's tables (faults31).
+
+    Parameters
+    ----------
+    files : list of pathlib.Path
+        ``<dataset>/site=<key>/*.parquet``, in the order the rows are wanted.
+
+    Returns
+    -------
+    pandas.DataFrame
+        The files' rows in order, with ``site`` (the key of each file's folder) last.
+
+    Raises
+    ------
+    ResourceShortage
+        Where the system refused memory or a thread while reading a file.
+    InputFileError
+        Where a file cannot be read or decoded.
+
+    References
+    ----------
+    Apache Arrow documentation, ``pyarrow.parquet.ParquetFile.read`` and
+    ``pyarrow.Table.to_pandas``: ``use_threads=False`` decodes on the calling thread (m).
+    """
+    schema, parts = None, []
+    for file in files:
+        part = _table_here(file)
+        schema = schema or part.schema
+        arrays = [part[f.name].cast(f.type) if f.name in part.column_names
+                  else pa.nulls(len(part), f.type) for f in schema]
+        key = file.parent.name.removeprefix("site=")
+        parts.append(pa.Table.from_arrays([*arrays, pa.array([key] * len(part), pa.string())],
+                                          names=[*schema.names, "site"]))
+    try:
+        return pa.concat_tables(parts).to_pandas(use_threads=False)
+    except (pa.ArrowException, MemoryError) as error:
+        raise shortage(files[0], error) or damaged_table(files[0], error) from None
+
+
+def _table_here(path: Path, columns=None) -> pa.Table:
+    """The Parquet file `path` (its `columns`, default all) decoded on the calling thread.
+
+    The file's bytes are read by Python and decoded from memory: pyarrow's own reading
+    of a path, an open file or a memory map starts a thread of its I/O pool per file
+    opened (up to 8), a buffer none (measured, pyarrow 26.0).
+
+    Raises
+    ------
+    ResourceShortage
+        Where the system refused memory (or a thread) while reading the file.
+    InputFileError
+        Where the file cannot be read or is no readable Parquet file.
+    """
+    try:
+        data = path.read_bytes()
+    except MemoryError as error:
+        raise shortage(path, error) from None
+    except OSError as error:
+        raise shortage(path, error) or unreadable_table(path, error) from None
+    try:
+        with pq.ParquetFile(pa.BufferReader(data)) as opened:
+            return opened.read(columns=columns, use_threads=False)
+    except (pa.ArrowException, ValueError, OSError, MemoryError) as error:
+        raise shortage(path, error) or damaged_table(path, error) from None
 
 
 def _network_attrs(path: Path) -> dict:
@@ -1060,6 +1133,84 @@ def _use_fork_server() -> None:
     from distributed.utils import get_mp_context
 
     get_mp_context().set_forkserver_preload(list(_WORKER_PRELOAD))
+    _start_fork_server_deaf()
+
+
+def _start_fork_server_deaf() -> None:
+    """Start the fork server with Ctrl-C ignored, so that neither it nor the workers it
+    forks raise KeyboardInterrupt.
+
+    A terminal's Ctrl-C reaches every process of the foreground group. The fork server
+    ignores SIGINT only after importing its preload modules
+    (``multiprocessing.forkserver.main``) and a worker only after its Dask preload
+    (:func:`dask_setup`): Ctrl-C in the first 2-4 s of a batch printed the server's
+    KeyboardInterrupt traceback. A signal ignored when a program is executed stays
+    ignored in it, and Python then installs no KeyboardInterrupt handler. This process
+    ignores SIGINT only while the server is spawned (``ensure_running`` returns once it
+    is started, before its imports). A caller's own forkserver processes of the same
+    Python process then ignore Ctrl-C too.
+
+    References
+    ----------
+    POSIX.1-2017, exec: signals set to be ignored by the calling process image are
+    ignored by the new process image (m). Python documentation, ``signal``: SIGINT is
+    translated into KeyboardInterrupt only where its handler was the default at
+    start-up (m).
+    """
+    import signal
+    import threading
+    from multiprocessing import forkserver
+
+    if threading.current_thread() is not threading.main_thread():
+        return
+    previous = signal.signal(signal.SIGINT, signal.SIG_IGN)
+    try:
+        forkserver.ensure_running()
+    finally:
+        signal.signal(signal.SIGINT, signal.default_int_handler if previous is None
+                      else previous)
+
+
+def _leave_unstarted_clusters(earlier=()) -> None:
+    """Leave a local cluster interrupted while starting to end with this process.
+
+    Ctrl-C or SIGTERM while ``LocalCluster`` starts its workers: Dask's exit handler
+    (``distributed.deploy.spec.close_clusters``) then closes the half-started cluster
+    and fails an assertion on a worker still in status ``init`` (a 20-line traceback
+    after the batch's one ``error:`` line), and the fork server, spared the signal
+    (:func:`_start_fork_server_deaf`), went on forking workers for a client already
+    gone, each printing a ``FileNotFoundError`` traceback. The cluster is left out of
+    that handler (``shutdown_on_close``; clusters in `earlier`, the ids of a caller's
+    own, are not touched), and the fork server this batch started is stopped; the workers already forked exit when their parent's pipe closes
+    (``distributed.process.AsyncProcess``). Measured: Ctrl-C to the process group at 10
+    offsets from 0.8 to 11 s into a 6-site batch, one line and nothing left running each
+    time (36-49 lines of stderr at 2.5 and 3.5 s before).
+
+    References
+    ----------
+    Dask ``distributed`` source, ``deploy/spec.py`` (``close_clusters`` skips a cluster
+    whose ``shutdown_on_close`` is false) and ``process.py``
+    (``_immediate_exit_when_closed``) (m).
+    """
+    import signal
+    from multiprocessing import forkserver
+
+    from distributed.core import Status
+    from distributed.deploy.spec import SpecCluster
+
+    for cluster in list(SpecCluster._instances):
+        if (id(cluster) not in earlier
+                and getattr(cluster, "status", None) != Status.closed):
+            cluster.shutdown_on_close = False
+    # the process is ending: the worker starts cut short by the stopped server are
+    # reported by asyncio at exit ("Task exception was never retrieved", 40 lines)
+    logging.getLogger("asyncio").setLevel(logging.CRITICAL)
+    pid = getattr(forkserver._forkserver, "_forkserver_pid", None)
+    if pid:
+        try:
+            os.kill(pid, signal.SIGKILL)
+        except OSError:
+            pass
 
 
 def dask_setup(worker) -> None:
@@ -1177,6 +1328,8 @@ def _client(scheduler, workers, sites: int | None = None):
                               "distributed.worker.multiprocessing-method": method}):
             if method == "forkserver":
                 _use_fork_server()
+            from distributed.deploy.spec import SpecCluster
+            earlier = {id(c) for c in SpecCluster._instances}   # a caller's own clusters
             try:
                 cluster = LocalCluster(n_workers=workers or _DEFAULT_WORKERS,
                                        threads_per_worker=1,
@@ -1197,6 +1350,9 @@ def _client(scheduler, workers, sites: int | None = None):
                     f"the local Dask cluster of {workers or _DEFAULT_WORKERS} worker(s) could "
                     f"not start ({type(error).__name__}: {error}); give fewer --workers, or "
                     "raise the limit that ran out (`ulimit -n`, `ulimit -u`)") from None
+            except BaseException:      # Ctrl-C, SIGTERM or SIGHUP while the workers start
+                _leave_unstarted_clusters(earlier)
+                raise
     finally:
         for name in set(os.environ) - set(saved):
             del os.environ[name]
@@ -1427,8 +1583,9 @@ def _same_record_pairs(outcomes) -> list:
             continue
         directory = Path(outcome.directory)
         try:
-            table = pq.read_table(directory / "timeseries.parquet",
-                                  columns=["time", "nee"]).to_pandas()
+            # on this thread (a thread the system refused hung or ended the batch's client)
+            table = _table_here(directory / "timeseries.parquet",
+                                columns=["time", "nee"]).to_pandas(use_threads=False)
             hashes[outcome.key] = _input_hashes(directory)
             keys[outcome.key] = day_keys(table["time"].to_numpy(), table["nee"].to_numpy())
         except (FluxpartError, OSError, ValueError, TypeError, KeyError, pa.ArrowException):
