@@ -131,3 +131,65 @@ def test_the_readmes_carbon_factor_converts_the_parquet_to_the_models_units(expo
     by_day = records.groupby(records.index.normalize()).sum().to_numpy()
     np.testing.assert_allclose(by_day[full], daily["gpp_daytime"].to_numpy()[full],
                                rtol=1e-12, atol=1e-12)
+
+
+@pytest.fixture(scope="module")
+def leap_july(tmp_path_factory):
+    """Two invented hourly years (2019, and 2020 with 29 February) under budget years from
+    1 July, written and exported to NetCDF and CSV."""
+    import fluxpart
+    from fluxpart import demo
+
+    frame, _ = demo.site_year(seed=2, year=2019, years=2, interval_minutes=60)
+    config = fluxpart.Config(ustar_bootstrap_draws=20, random_error_draws=50,
+                             year_start="07-01")
+    with pytest.warns(fluxpart.FluxpartWarning):
+        result = fluxpart.process(frame, demo.site(), config)
+    folder = result.write(tmp_path_factory.mktemp("leap") / "result")
+    path, csv = folder.parent / "site.nc", folder.parent / "csv"
+    assert main(["export", str(folder), "--netcdf", str(path), "--csv", str(csv)]) == 0
+    with xr.open_dataset(path) as dataset:
+        yield folder, dataset.load(), csv
+
+
+def test_every_format_sums_the_same_records_over_a_leap_year_and_july_budget_years(leap_july):
+    """Known-truth recovery of the sums from the records, format by format: a day, a month
+    and a budget year (1 July to 1 July, local standard time) sum their records x 3600 s x
+    12.011e-9 kg C per µmol CO2 (IUPAC C, (m)) x 1e3 g/kg; the leap year's February has 29
+    days (Gregorian calendar) and its budget year 2019 (July 2019 - June 2020) 366 x 24
+    records. Parquet read with plain pandas, CSV with pandas.read_csv, NetCDF with xarray."""
+    folder, dataset, csv = leap_july
+    series = pd.read_parquet(folder / "timeseries.parquet").set_index("time")
+    grams = series[["nee_filled", "gpp_daytime", "gpp_nighttime", "reco_nighttime"]] \
+        * 3600.0 * 12.011e-9 * 1e3
+    grams = grams.rename(columns={"nee_filled": "nee"})
+    tables = {t: pd.read_parquet(folder / f"{t}.parquet") for t in ("daily", "monthly",
+                                                                      "annual")}
+    texts = {t: pd.read_csv(csv / f"{t}.csv") for t in tables}
+    annual = tables["annual"]
+    assert list(annual["year"]) == [2018, 2019, 2020]
+    full = annual.set_index("year").loc[2019]
+    assert full["records_expected"] == 366 * 24 and full["records"] == 366 * 24
+    february = tables["daily"]["date"].dt.strftime("%Y-%m").eq("2020-02")
+    assert february.sum() == 29
+    by_day = grams.groupby(grams.index.normalize()).sum()
+    by_month = grams.groupby(grams.index.to_period("M")).sum()
+    by_year = [grams[(grams.index >= start) & (grams.index < end)].sum()
+               for start, end in zip(annual["period_start"], annual["period_end"],
+                                 strict=True)]
+    for name in grams.columns:
+        for table, expected in (("daily", by_day[name].to_numpy()),
+                                ("monthly", by_month[name].to_numpy()),
+                                ("annual", np.array([y[name] for y in by_year]))):
+            np.testing.assert_allclose(tables[table][name].to_numpy(), expected,
+                                       rtol=1e-11, atol=1e-9, err_msg=(table, name))
+            np.testing.assert_array_equal(texts[table][name].to_numpy(),
+                                          tables[table][name].to_numpy())
+        for period, table in (("daily", "daily"), ("monthly", "monthly"), ("annual", "annual")):
+            np.testing.assert_array_equal(dataset[f"{name}_{period}_sum"].to_numpy(),
+                                          tables[table][name].to_numpy())
+    # the NetCDF's year bounds are the budget years' (UTC = local standard time - offset)
+    offset = pd.Timedelta(hours=annual.attrs["site"]["utc_offset"])
+    starts = pd.DatetimeIndex(dataset["year_bounds"].to_numpy()[:, 0]) + offset
+    assert list(starts) == list(pd.DatetimeIndex(annual["period_start"]))
+    assert list(dataset["budget_year"].to_numpy()) == [2018, 2019, 2020]
