@@ -14,7 +14,8 @@ Layout (one file, four time axes):
   error of NEE, the drivers (Rg, Tair, VPD, u*, Tsoil where present) and the flag
   variables ``nee_fill_quality`` and ``rejection_reason`` (``flag_values`` /
   ``flag_meanings``), and ``<driver>_fill_quality`` for each gap-filled driver (its
-  ``ancillary_variables``);
+  ``ancillary_variables``); ``nep`` links NEE's flags and random error, and
+  ``gpp_nighttime`` (Reco - NEE) ``nee_fill_quality`` and ``nee_random_error``;
 - ``day`` (one per local standard day): the same fluxes as daily means [kg m-2 s-1]
   and as daily sums [g m-2, carbon] (``cell_methods = "day: sum"``), with their 1-sigma
   where the run estimated it;
@@ -23,7 +24,8 @@ Layout (one file, four time axes):
   ``<flux>_monthly_sum`` / ``<flux>_annual_sum`` [g m-2, carbon], the means
   [kg m-2 s-1], the 1-sigma ``*_sum_sigma`` and, for the annual budget, the ends of its
   stated 95 % interval ``*_annual_sum_ci95_low`` / ``_high``, the coverage shares and
-  the u* threshold of each year (:func:`_period_variables`);
+  the u* threshold of each year (:func:`_period_variables`), and the auxiliary coordinate
+  ``budget_year``, the annual table's label (the calendar year a budget year starts in);
 - ``time_bounds``, ``day_bounds``, ``month_bounds`` and ``year_bounds`` give each cell's
   start and end; coordinate values
   are the cell midpoints, in UTC (the site's local standard time minus its
@@ -255,7 +257,8 @@ def to_xarray(result):
              "units": "kg m-2 s-1",
              "comment": "a measured record: the random measurement error modelled at its "
              "flux; a filled record: the larger of that and the spread of the measured "
-             "records its fill averaged (where it averaged 5 or more). Errors of "
+             "records its fill averaged (where it averaged 5 or more); also the random "
+             "error of the record's gpp_nighttime (Reco - NEE) and of nep. Errors of "
              "neighbouring records and of fills that share records are correlated, so "
              "these do not add in quadrature to a day's error: use the daily "
              "*_daily_sum_sigma"})
@@ -267,11 +270,19 @@ def to_xarray(result):
             attrs["standard_name"] = STANDARD_NAMES["gpp"]
         if name == "nee" and ancillary:
             attrs["ancillary_variables"] = " ".join(ancillary)
+        elif name == "gpp_nighttime":
+            # Reco - NEE of the same record: measured or filled as that NEE, and NEE's random
+            # error is its own (the Parquet description says so); the daytime method's and
+            # the modelled Reco do not rest on the record's NEE (CF-1.10 section 3.4)
+            linked = [a for a in ancillary if a != "rejection_reason"]
+            if linked:
+                attrs["ancillary_variables"] = " ".join(linked)
         variables[name] = ("time", values, attrs)
-    variables["nep"] = ("time", -variables["nee"][1],
-                        {"long_name": "net ecosystem production as carbon = -nee; positive = "
-                         "uptake by the land", "standard_name": STANDARD_NAMES["nep"],
-                         **mean_attrs})
+    nep_attrs = {"long_name": "net ecosystem production as carbon = -nee; positive = uptake by "
+                 "the land", "standard_name": STANDARD_NAMES["nep"], **mean_attrs}
+    if ancillary:       # -NEE: NEE's flags and error, also for a reader choosing by CF name
+        nep_attrs["ancillary_variables"] = " ".join(ancillary)
+    variables["nep"] = ("time", -variables["nee"][1], nep_attrs)
     for name, (column, unit, factor, long_name) in _DRIVERS.items():
         if column in series.columns:
             attrs = {"long_name": long_name, "units": unit, "cell_methods": "time: mean"}
@@ -342,6 +353,11 @@ def to_xarray(result):
                              "standard day, UTC", "bounds": "day_bounds"}),
         "month": month_coord,
         "year": year_coord,
+        # the annual table's label: the calendar year a budget year starts in, which the
+        # UTC midpoint does not give where year_start is after early July (CF-1.10 5.2)
+        "budget_year": ("year", np.asarray(result.annual.index, dtype=np.int32), {
+            "long_name": "budget year as labelled in the annual table (year): the calendar "
+                         "year of local standard time in which the budget year starts"}),
         "lat": ((), float(site.latitude), {"standard_name": "latitude",
                                            "units": "degrees_north"}),
         "lon": ((), float(site.longitude), {"standard_name": "longitude",
