@@ -4035,8 +4035,20 @@ def _near(name: str, options: list, taken=()) -> str:
     Columns in `taken` (read as another variable, or as the time) are never suggested.
     """
     free = [str(o) for o in options if o not in taken]
-    close = difflib.get_close_matches(name, free, n=1, cutoff=0.6)
-    if close:
+    key = name.strip().casefold()
+    # the name with a prefix or suffix joined by "_", "-", ".", ":" or a blank (a site
+    # code or logger name before each column name, "QMG_fc" for "fc"; layouts31: the
+    # file's columns were listed, none suggested)
+    joined = [o for o in free if len(key) >= 2 and (
+        re.fullmatch(r".+[_\-.: ]" + re.escape(key), o.strip().casefold())
+        or re.fullmatch(re.escape(key) + r"[_\-.: ].+", o.strip().casefold()))]
+    # the name itself with other blanks around it, or in another case ("CO2_FLUX" for
+    # "co2_flux", which difflib scores as far apart) comes before any nearer-looking
+    # name: a "co2_flux_open" beside it was suggested instead (layouts34)
+    same = ([o for o in free if o.strip() == name.strip()]
+            or [o for o in free if o.strip().casefold() == key])
+    close = same[:1] or difflib.get_close_matches(name, free, n=1, cutoff=0.6)
+    if close and not same:
         # columns as near as the nearest (TS_1, TS_2, TS_3 for "TS": soil temperatures at
         # several depths) are all named, in file order: the nearest alone was the last in
         # alphabetical order, a choice the file does not make
@@ -4047,21 +4059,16 @@ def _near(name: str, options: list, taken=()) -> str:
         if len(tied) > 1:
             return (" (did you mean one of " + ", ".join(repr(o) for o in tied[:6])
                     + "? as near as each other: map the one you mean)")
+    if len(joined) > 1 and not same:
+        # several columns carry the name with another prefix or suffix (a profile's
+        # heights, tair_2m / tair_10m / tair_30m; two analysers, fc_open / fc_closed):
+        # the nearest by difflib was the shortest, a choice the file does not make and
+        # one that moves the budget (layouts34), so every one is named
+        shown = joined[:6] + [c for c in close if c not in joined]
+        return (" (did you mean one of " + ", ".join(repr(o) for o in shown)
+                + f"? {len(joined)} columns carry the name with another prefix or suffix "
+                "(heights, depths, instruments or statistics?): map the one you mean)")
     if not close:
-        stripped = [o for o in free if o.strip() == name.strip()]
-        close = stripped[:1]
-    if not close:
-        # another case ("CO2_FLUX" for "co2_flux"), which difflib scores as far apart
-        folded = [o for o in free if o.strip().casefold() == name.strip().casefold()]
-        close = folded[:1]
-    if not close:
-        # the name with a prefix or suffix joined by "_", "-", ".", ":" or a blank (a site
-        # code or logger name before each column name, "QMG_fc" for "fc"; layouts31: the
-        # file's columns were listed, none suggested)
-        key = name.strip().casefold()
-        joined = [o for o in free if len(key) >= 2 and (
-            re.fullmatch(r".+[_\-.: ]" + re.escape(key), o.strip().casefold())
-            or re.fullmatch(re.escape(key) + r"[_\-.: ].+", o.strip().casefold()))]
         if len(joined) == 1:
             start = joined[0].strip().casefold().find(key)
             extra = joined[0].strip()[:start] if start > 0 else \

@@ -1,0 +1,116 @@
+"""Layouts of the layouts34 round.
+
+Outside facts, each named beside its check: a profile system measures air temperature and
+CO2 at several heights on one mast, and such files name each height in the column's name
+(tair_2m, tair_10m, tair_30m: common practice); towers running an open-path and a
+closed-path analyser side by side write one flux column per analyser (common practice).
+The two readings differ: an open-path flux needs a heating correction the closed path does
+not (Burba et al. 2008, Global Change Biology 14, 1854-1876 (m)), so which column is NEE
+moves the budget. Everything else is invented known truth: the records as written.
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.errors import MissingColumnError
+from fluxpart.io import _near, read_table
+from fluxpart.site import Site
+
+SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
+
+
+def _write(path, names, count=48 * 20, seed=34):
+    """Invented half-hourly records, one column per name, plausible for each kind."""
+    ends = pd.date_range("2021-06-01 00:30", periods=count, freq="30min")
+    hour = ends.hour + ends.minute / 60
+    rng = np.random.default_rng(seed)
+    day = np.sin((hour - 6) / 12 * np.pi)
+    kinds = {"fc": lambda: (3 - 12 * np.clip(day, 0, None) + rng.normal(0, 1, count)).round(3),
+             "us": lambda: (0.3 + 0.1 * rng.random(count)).round(3),
+             "sw": lambda: (np.clip(800 * day, 0, None) + 1.0).round(1),
+             "ta": lambda: (15 + 6 * day + rng.normal(0, 0.2, count)).round(2),
+             "vpd": lambda: (0.8 + 0.6 * np.clip(day, 0, None)).round(3)}
+    columns = {}
+    for name in names:
+        kind = next(k for k in kinds if name.casefold().startswith(k))
+        columns[name] = kinds[kind]()
+    lines = ["stamp," + ",".join(names)]
+    lines += [f"{e:%Y-%m-%d %H:%M}," + ",".join(f"{columns[n][i]:g}" for n in names)
+              for i, e in enumerate(ends)]
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    return path
+
+
+def _read(path, mapping):
+    return read_table(path, columns=mapping, time_column="stamp",
+                      time_format="%Y-%m-%d %H:%M", time_marks="end",
+                      units={"vpd": "kPa"}, site=SITE)
+
+
+# ------------------------------------------------ a profile's heights, two analysers
+def test_a_profile_of_heights_names_every_height_not_the_shortest(tmp_path):
+    """Before: `tair = "ta"` over a profile file (ta_2m, ta_10m, ta_30m) was told "did you
+    mean 'ta_2m'?", the shortest name (difflib's nearest), one height of three chosen by
+    the hint; now every height is named and the choice left to the user."""
+    names = ["fc", "us", "sw", "ta_2m", "ta_10m", "ta_30m", "vpd"]
+    path = _write(tmp_path / "profile.csv", names)
+    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    with pytest.raises(MissingColumnError) as caught:
+        _read(path, mapping)
+    message = str(caught.value)
+    assert "did you mean one of 'ta_2m', 'ta_10m', 'ta_30m'?" in message
+    assert "3 columns carry the name" in message and "map the one you mean" in message
+    # the height named is read as written (known truth: the column's own values)
+    table, _ = _read(path, mapping | {"tair": "ta_10m"})
+    written = pd.read_csv(path)["ta_10m"].to_numpy()
+    assert np.array_equal(table["tair"].to_numpy(), written)
+
+
+def test_two_analysers_name_both_fluxes_not_the_shorter(tmp_path):
+    """Before: `nee = "fc"` over fc_open and fc_closed (two analysers) was told "did you
+    mean 'fc_open'?", the shorter name; an open-path flux needs a correction the closed
+    path does not (Burba et al. 2008 (m)), so both are named."""
+    names = ["fc_closed", "fc_open", "us", "sw", "ta", "vpd"]
+    path = _write(tmp_path / "two.csv", names)
+    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    with pytest.raises(MissingColumnError) as caught:
+        _read(path, mapping)
+    message = str(caught.value)
+    assert "did you mean one of 'fc_closed', 'fc_open'?" in message
+    assert "did you mean 'fc_open'" not in message
+
+
+def test_the_many_suffixes_rule_on_its_own():
+    """One column with a prefix or suffix is still suggested alone (layouts31's site code);
+    an exact name in another case is still preferred over the suffixed ones; a name far
+    from every column still gets no suggestion."""
+    assert _near("fc", ["QMG_fc", "QMG_ta"]) == (
+        " (did you mean 'QMG_fc'? the file's name carries the prefix 'QMG_')")
+    assert _near("co2_flux", ["CO2_FLUX", "co2_flux_open", "co2_flux_closed"]) == (
+        " (did you mean 'CO2_FLUX'?)")
+    several = _near("ta", ["tau", "ta_2m", "ta_10m"])
+    assert several.startswith(" (did you mean one of 'ta_2m', 'ta_10m', 'tau'?")
+    assert _near("ustar", ["zz", "qq"]) == ""
+
+
+def test_one_flux_in_two_units_names_both_columns(tmp_path):
+    """Before: `nee = "NEE"` over "NEE (umol m-2 s-1)" and "NEE (mg m-2 s-1)" (one flux
+    written in two units) was told to map the mg column, the shorter name; 1 mg CO2 m-2
+    s-1 is 22.7 umol m-2 s-1 (molar mass of CO2 44.01 g mol-1, IUPAC (m)), so both are
+    named."""
+    path = tmp_path / "units.csv"
+    _write(path, ["fc", "us", "sw", "ta", "vpd"])
+    text = path.read_text(encoding="utf-8").splitlines()
+    flux = pd.read_csv(path)["fc"].to_numpy()
+    header = "stamp,NEE (umol m-2 s-1),NEE (mg m-2 s-1)," + text[0].split(",", 2)[2]
+    rows = [f"{line.split(',', 2)[0]},{line.split(',', 2)[1]},{f * 44.01e-3:.5f},"
+            f"{line.split(',', 2)[2]}" for line, f in zip(text[1:], flux, strict=True)]
+    path.write_text("\n".join([header] + rows) + "\n", encoding="utf-8")
+    mapping = {"nee": "NEE", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    with pytest.raises(MissingColumnError) as caught:
+        _read(path, mapping)
+    message = str(caught.value)
+    assert "did you mean one of 'NEE (umol m-2 s-1)', 'NEE (mg m-2 s-1)'?" in message
+    table, _ = _read(path, mapping | {"nee": "NEE (umol m-2 s-1)"})
+    assert np.array_equal(table["nee"].to_numpy(), flux)
