@@ -2786,6 +2786,22 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
         return raw, lines
     last = len(raw) - 1
     inner = [row for row in short if row != last]
+    footer = _comment_footer(text_lines, lines, short, last, delimiter)
+    if inner and footer and inner[0] >= footer[0]:
+        # a block of comment lines ending the file ("# end of file", "# records: 17520"):
+        # no record among them; one footer line was dropped with a warning, a block of
+        # them was "a comment line among the records" (layouts34)
+        first = int(lines[footer[0]])
+        if warnings is None:
+            raise InputFileError(
+                f"input file {str(path)!r}: lines {first} to {int(lines[last])} are comment "
+                f"lines ending the file ({_shown_line(text_lines[first - 1])!r}, ...), a "
+                "footer; delete them in a copy of the file")
+        warnings.append(
+            f"input file {str(path)!r}: its last {len(footer)} lines ({first} to "
+            f"{int(lines[last])}: {_shown_line(text_lines[first - 1])!r}, ...) are comment "
+            "lines ending the file, a footer: dropped")
+        return raw.iloc[:footer[0]].reset_index(drop=True), lines[:footer[0]]
     if inner:
         row = inner[0]
         changed = _changed_layout(path, text_lines, int(lines[row]), width, delimiter,
@@ -2841,6 +2857,21 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
         raise InputFileError(note.replace(": dropped", "; delete that line"))
     warnings.append(note)
     return raw.iloc[:last].reset_index(drop=True), lines[:last]
+
+
+def _comment_footer(text_lines: list, lines: np.ndarray, short: list, last: int,
+                    delimiter: str) -> list:
+    """Rows (0-based, ascending) of the block of short comment lines that ends the file
+    (two or more, each starting with a comment mark), else []."""
+    if delimiter == _WHITESPACE:
+        return []
+    marks = tuple(m for m in _COMMENT_MARKS if not (delimiter == ";" and m == ";"))
+    shorts, block = set(short), []
+    row = last
+    while row in shorts and text_lines[lines[row] - 1].lstrip().startswith(marks):
+        block.append(row)
+        row -= 1
+    return block[::-1] if len(block) >= 2 else []
 
 
 _DECIMALS = re.compile(r"^\s*[+-]?\d*[.,](\d+)\s*$")

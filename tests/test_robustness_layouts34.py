@@ -13,7 +13,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart.errors import MissingColumnError
+from fluxpart.errors import InputFileError, MissingColumnError
 from fluxpart.io import _near, read_table
 from fluxpart.site import Site
 
@@ -114,3 +114,36 @@ def test_one_flux_in_two_units_names_both_columns(tmp_path):
     assert "did you mean one of 'NEE (umol m-2 s-1)', 'NEE (mg m-2 s-1)'?" in message
     table, _ = _read(path, mapping | {"nee": "NEE (umol m-2 s-1)"})
     assert np.array_equal(table["nee"].to_numpy(), flux)
+
+
+# ------------------------------------------------------- a block of comment lines at the end
+def test_a_block_of_comment_lines_ending_the_file_is_dropped_as_a_footer(tmp_path):
+    """Before: three comment lines closing a file ("# end of file", a record count, a
+    checksum) were refused as "a comment line among the records", where one such line is
+    dropped with a warning as a footer; now the block is dropped, named, and every record
+    is read as written (known truth: the records before it)."""
+    names = ["fc", "us", "sw", "ta", "vpd"]
+    plain = _write(tmp_path / "plain.csv", names)
+    footed = tmp_path / "footed.csv"
+    footed.write_text(plain.read_text(encoding="utf-8")
+                      + "# end of file\n# records: 960\n# checksum 3f2a\n", encoding="utf-8")
+    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    expected, _ = _read(plain, mapping)
+    table, report = _read(footed, mapping)
+    pd.testing.assert_frame_equal(table, expected)
+    assert any("its last 3 lines (962 to 964: '# end of file', ...) are comment lines "
+               "ending the file, a footer: dropped" in w for w in report.warnings)
+
+
+def test_comment_lines_among_the_records_stay_refused(tmp_path):
+    """A comment between records (a logger restart's note) is still refused, naming it:
+    only a block that ends the file is a footer."""
+    names = ["fc", "us", "sw", "ta", "vpd"]
+    path = _write(tmp_path / "notes.csv", names)
+    lines = path.read_text(encoding="utf-8").splitlines()
+    lines[400:400] = ["# logger restarted", "# program qm_v2"]
+    path.write_text("\n".join(lines) + "\n# end of file\n", encoding="utf-8")
+    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    with pytest.raises(InputFileError, match=r"line 401 \('# logger restarted'\).*a comment "
+                                             r"line among the records"):
+        _read(path, mapping)
