@@ -147,3 +147,46 @@ def test_comment_lines_among_the_records_stay_refused(tmp_path):
     with pytest.raises(InputFileError, match=r"line 401 \('# logger restarted'\).*a comment "
                                              r"line among the records"):
         _read(path, mapping)
+
+
+# ------------------------------------------------- net radiation of a cloudy site as rg
+@pytest.fixture(scope="module")
+def demo_frame():
+    from fluxpart import demo
+
+    frame, _ = demo.site_year(seed=2)       # the invented Quillmoor site
+    return frame
+
+
+def test_net_radiation_of_a_cloudy_site_mapped_as_rg_is_named_as_net_radiation(demo_frame):
+    """Before: net radiation whose night median is only -15 W m-2 (a cloudy site; under a
+    clear sky it is -30 to -100 W m-2, near 0 under cloud (m)) mapped as rg passed the
+    night check (-20 W m-2) and was refused as "PAR in W m-2 ... or a shaded or soiled
+    sensor", neither of which reads below 0 at night beyond a pyranometer's thermal offset
+    of 0 to about -10 W m-2 (m); now net radiation is named too. By day net radiation over
+    vegetation is roughly 0.6 of global radiation less the long-wave loss (common
+    practice). PAR in W m-2 (0.46 of global radiation (m)), about 0 at night, is still
+    named without it."""
+    from fluxpart import demo
+    from fluxpart.solar import potential_radiation
+    from fluxpart.unit_checks import mixup_messages
+
+    site = demo.SITE
+    potential = potential_radiation(demo_frame.index, site.latitude, site.longitude,
+                                    site.utc_offset, interval_minutes=30)
+    names = ("nee", "rg", "tair", "vpd")
+    converted = {n: demo_frame[n].to_numpy(float) for n in names}
+    rg = converted["rg"]
+    noise = np.random.default_rng(34).normal(0, 6, rg.size)
+    net = np.where(potential > 0, 0.6 * rg - 20, -15 + noise)
+    refusals, _ = mixup_messages(converted | {"rg": net}, {}, {n: n for n in names}, 30,
+                                 potential)
+    message = refusals.get("rg", "")
+    assert "the values look like net radiation (with the sun down its median is -15 W m-2" \
+        in message, refusals
+    assert "PAR in W m-2" in message
+    par = np.where(potential > 0, 0.46 * rg, np.abs(noise) / 6)
+    refusals, _ = mixup_messages(converted | {"rg": par}, {}, {n: n for n in names}, 30,
+                                 potential)
+    assert "the values look like PAR in W m-2" in refusals.get("rg", ""), refusals
+    assert "net radiation" not in refusals["rg"]
