@@ -2332,6 +2332,24 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
             header_line = next(iter(text.splitlines()[rows_before_header:]), "")
             found = re.search(r"Expected (\d+) fields in line (\d+), saw", str(error))
+            closed = found and _closed_from(text, int(found.group(2)), int(found.group(1)),
+                                            delimiter)
+            if closed:
+                closed = f"input file {str(path)!r}: {closed}"
+                # every line from there on ends with the delimiter, the field after it
+                # empty: a delimiter closing each line (an export setting changed), which
+                # is read as no column where the whole file has it (layouts34: "a logger
+                # program that added a column")
+                if warnings is None:
+                    raise InputFileError(closed) from None
+                warnings.append(closed.replace("; delete it in a copy of the file",
+                                               ": read as no column"))
+                lines = text.splitlines(keepends=True)
+                start = int(found.group(2)) - 1
+                cut = [re.sub(re.escape(delimiter) + r"(\r\n|\r|\n)?$", r"\1", line)
+                       for line in lines[start:]]
+                return _read_text(path, "".join(lines[:start] + cut), delimiter,
+                                  rows_before_header, rows_after_header, warnings)
             # a header of one cell holding another separator is a delimiter setting's
             # matter (_parser_message), not a layout changed mid-file
             changed = (found and (delimiter == _WHITESPACE or delimiter in header_line)
@@ -2734,6 +2752,22 @@ def _field_count(line: str, delimiter: str) -> int:
 #: taken for a logger program changed without a new header line, not for records cut
 #: short; our choice (a day of hourly records), far more than a few interrupted writes.
 _CHANGED_LAYOUT_LINES = 24
+
+
+def _closed_from(text: str, line: int, width: int, delimiter: str) -> str:
+    """The note where every non-blank line from `line` (1-based) to the end holds one field
+    more than the header's `width` and ends with the delimiter (the field after it empty),
+    else ''."""
+    if delimiter == _WHITESPACE:
+        return ""
+    rest = [candidate for candidate in text.splitlines()[line - 1:] if candidate.strip()]
+    if not rest or not all(candidate.endswith(delimiter)
+                           and _field_count(candidate, delimiter) == width + 1
+                           for candidate in rest):
+        return ""
+    return (f"every line from line {line} on ({len(rest)} lines) ends with the delimiter "
+            f"{delimiter!r}, an empty field after the header's {width}; delete it in a copy "
+            "of the file")
 
 
 def _changed_layout(path: Path, text_lines: list, line: int, width: int,

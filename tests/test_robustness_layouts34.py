@@ -190,3 +190,30 @@ def test_net_radiation_of_a_cloudy_site_mapped_as_rg_is_named_as_net_radiation(d
                                  potential)
     assert "the values look like PAR in W m-2" in refusals.get("rg", ""), refusals
     assert "net radiation" not in refusals["rg"]
+
+
+# ----------------------------------------- a delimiter closing every line from mid-file on
+def test_a_delimiter_closing_every_line_from_mid_file_on_is_read_as_no_column(tmp_path):
+    """Before: where an export setting changed mid-file and every line from there on
+    ended with the delimiter (an empty field after the last value), the file was refused
+    as "a logger program that added a column"; the whole file so written is read with the
+    empty field as no column, and so now is the part: the records are read as written
+    (known truth), with a warning naming the line. A column really added (values in the
+    extra field) stays refused."""
+    names = ["fc", "us", "sw", "ta", "vpd"]
+    plain = _write(tmp_path / "plain.csv", names)
+    lines = plain.read_text(encoding="utf-8").splitlines()
+    closed = tmp_path / "closed.csv"
+    closed.write_text("\n".join(lines[:500] + [line + "," for line in lines[500:]]) + "\n",
+                      encoding="utf-8")
+    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    expected, _ = _read(plain, mapping)
+    table, report = _read(closed, mapping)
+    pd.testing.assert_frame_equal(table, expected)
+    assert any("every line from line 501 on (461 lines) ends with the delimiter ','" in w
+               and "read as no column" in w for w in report.warnings)
+    added = tmp_path / "added.csv"
+    added.write_text("\n".join(lines[:500] + [line + ",7.5" for line in lines[500:]]) + "\n",
+                     encoding="utf-8")
+    with pytest.raises(InputFileError, match="a logger program that added a column"):
+        _read(added, mapping)
