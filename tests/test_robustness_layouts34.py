@@ -13,7 +13,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart.errors import InputFileError, MissingColumnError
+from fluxpart.errors import InputFileError, MissingColumnError, NonMonotonicTimestampError
 from fluxpart.io import _near, read_table
 from fluxpart.site import Site
 
@@ -217,3 +217,27 @@ def test_a_delimiter_closing_every_line_from_mid_file_on_is_read_as_no_column(tm
                      encoding="utf-8")
     with pytest.raises(InputFileError, match="a logger program that added a column"):
         _read(added, mapping)
+
+
+# ------------------------------------------------------------ a file written newest first
+def test_a_file_written_newest_first_is_named_so(tmp_path):
+    """Before: a file whose every step goes back in time (an export sorted descending)
+    was named by its first step back alone, as one record out of place; now the count of
+    backward steps and "newest first" are named. Stamps of an interval's end increase
+    with time (common practice: any time series)."""
+    names = ["fc", "us", "sw", "ta", "vpd"]
+    path = _write(tmp_path / "plain.csv", names)
+    lines = path.read_text(encoding="utf-8").splitlines()
+    path.write_text("\n".join(lines[:1] + lines[:0:-1]) + "\n", encoding="utf-8")
+    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    with pytest.raises(NonMonotonicTimestampError,
+                       match=r"959 of its 959 steps go backwards: the file is written "
+                             r"newest first; sort a copy of the file oldest first"):
+        _read(path, mapping)
+    # one record out of place is not named so
+    lines = _write(tmp_path / "plain.csv", names).read_text(encoding="utf-8").splitlines()
+    lines[10], lines[11] = lines[11], lines[10]
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    with pytest.raises(NonMonotonicTimestampError) as caught:
+        _read(path, mapping)
+    assert "newest first" not in str(caught.value)
