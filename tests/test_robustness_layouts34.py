@@ -13,7 +13,12 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart.errors import InputFileError, MissingColumnError, NonMonotonicTimestampError
+from fluxpart.errors import (
+    ImplausibleValueError,
+    InputFileError,
+    MissingColumnError,
+    NonMonotonicTimestampError,
+)
 from fluxpart.io import _near, read_table
 from fluxpart.site import Site
 
@@ -241,3 +246,27 @@ def test_a_file_written_newest_first_is_named_so(tmp_path):
     with pytest.raises(NonMonotonicTimestampError) as caught:
         _read(path, mapping)
     assert "newest first" not in str(caught.value)
+
+
+# ------------------------------------------------------------------ u* in centimetres
+def test_ustar_in_centimetres_per_second_is_named_and_read_declared(tmp_path):
+    """Before: u* written in cm s-1 (median 24 for 0.24 m s-1) was refused as out of range
+    with "check the column mapping and [input.units]", which held no unit to declare; now
+    the refusal names `ustar = "cm s-1"` and the unit is read (1 cm = 0.01 m, SI)."""
+    names = ["fc", "us", "sw", "ta", "vpd"]
+    plain = _write(tmp_path / "plain.csv", names)
+    frame = pd.read_csv(plain)
+    frame["us"] = (frame["us"] * 100).round(1)
+    centi = tmp_path / "centi.csv"
+    frame.to_csv(centi, index=False)
+    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    with pytest.raises(ImplausibleValueError,
+                       match=r"the values look like 'cm s-1': set \[input.units\] ustar = "
+                             r"\"cm s-1\""):
+        _read(centi, mapping)
+    table, _ = read_table(centi, columns=mapping, time_column="stamp",
+                          time_format="%Y-%m-%d %H:%M", time_marks="end",
+                          units={"vpd": "kPa", "ustar": "cm s-1"}, site=SITE)
+    expected, _ = _read(plain, mapping)
+    np.testing.assert_allclose(table["ustar"].to_numpy(), expected["ustar"].to_numpy(),
+                               rtol=1e-15, atol=0)
