@@ -2351,6 +2351,24 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
             header_line = next(iter(text.splitlines()[rows_before_header:]), "")
             found = re.search(r"Expected (\d+) fields in line (\d+), saw", str(error))
+            closed = found and _closed_from(text, int(found.group(2)), int(found.group(1)),
+                                            delimiter)
+            if closed:
+                closed = f"input file {str(path)!r}: {closed}"
+                # every line from there on ends with the delimiter, the field after it
+                # empty: a delimiter closing each line (an export setting changed), which
+                # is read as no column where the whole file has it (layouts34: "a logger
+                # program that added a column")
+                if warnings is None:
+                    raise InputFileError(closed) from None
+                warnings.append(closed.replace("; delete it in a copy of the file",
+                                               ": read as no column"))
+                lines = text.splitlines(keepends=True)
+                start = int(found.group(2)) - 1
+                cut = [re.sub(re.escape(delimiter) + r"(\r\n|\r|\n)?$", r"\1", line)
+                       for line in lines[start:]]
+                return _read_text(path, "".join(lines[:start] + cut), delimiter,
+                                  rows_before_header, rows_after_header, warnings)
             # a header of one cell holding another separator is a delimiter setting's
             # matter (_parser_message), not a layout changed mid-file
             changed = (found and (delimiter == _WHITESPACE or delimiter in header_line)
@@ -2755,6 +2773,22 @@ def _field_count(line: str, delimiter: str) -> int:
 _CHANGED_LAYOUT_LINES = 24
 
 
+def _closed_from(text: str, line: int, width: int, delimiter: str) -> str:
+    """The note where every non-blank line from `line` (1-based) to the end holds one field
+    more than the header's `width` and ends with the delimiter (the field after it empty),
+    else ''."""
+    if delimiter == _WHITESPACE:
+        return ""
+    rest = [candidate for candidate in text.splitlines()[line - 1:] if candidate.strip()]
+    if not rest or not all(candidate.endswith(delimiter)
+                           and _field_count(candidate, delimiter) == width + 1
+                           for candidate in rest):
+        return ""
+    return (f"every line from line {line} on ({len(rest)} lines) ends with the delimiter "
+            f"{delimiter!r}, an empty field after the header's {width}; delete it in a copy "
+            "of the file")
+
+
 def _changed_layout(path: Path, text_lines: list, line: int, width: int,
                     delimiter: str, first_data: int | None = None) -> str:
     """The refusal where every non-blank line from `line` (1-based) to the end has one
@@ -2805,6 +2839,22 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
         return raw, lines
     last = len(raw) - 1
     inner = [row for row in short if row != last]
+    footer = _comment_footer(text_lines, lines, short, last, delimiter)
+    if inner and footer and inner[0] >= footer[0]:
+        # a block of comment lines ending the file ("# end of file", "# records: 17520"):
+        # no record among them; one footer line was dropped with a warning, a block of
+        # them was "a comment line among the records" (layouts34)
+        first = int(lines[footer[0]])
+        if warnings is None:
+            raise InputFileError(
+                f"input file {str(path)!r}: lines {first} to {int(lines[last])} are comment "
+                f"lines ending the file ({_shown_line(text_lines[first - 1])!r}, ...), a "
+                "footer; delete them in a copy of the file")
+        warnings.append(
+            f"input file {str(path)!r}: its last {len(footer)} lines ({first} to "
+            f"{int(lines[last])}: {_shown_line(text_lines[first - 1])!r}, ...) are comment "
+            "lines ending the file, a footer: dropped")
+        return raw.iloc[:footer[0]].reset_index(drop=True), lines[:footer[0]]
     if inner:
         row = inner[0]
         changed = _changed_layout(path, text_lines, int(lines[row]), width, delimiter,
@@ -2860,6 +2910,21 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
         raise InputFileError(note.replace(": dropped", "; delete that line"))
     warnings.append(note)
     return raw.iloc[:last].reset_index(drop=True), lines[:last]
+
+
+def _comment_footer(text_lines: list, lines: np.ndarray, short: list, last: int,
+                    delimiter: str) -> list:
+    """Rows (0-based, ascending) of the block of short comment lines that ends the file
+    (two or more, each starting with a comment mark), else []."""
+    if delimiter == _WHITESPACE:
+        return []
+    marks = tuple(m for m in _COMMENT_MARKS if not (delimiter == ";" and m == ";"))
+    shorts, block = set(short), []
+    row = last
+    while row in shorts and text_lines[lines[row] - 1].lstrip().startswith(marks):
+        block.append(row)
+        row -= 1
+    return block[::-1] if len(block) >= 2 else []
 
 
 _DECIMALS = re.compile(r"^\s*[+-]?\d*[.,](\d+)\s*$")
@@ -4174,8 +4239,20 @@ def _near(name: str, options: list, taken=()) -> str:
     Columns in `taken` (read as another variable, or as the time) are never suggested.
     """
     free = [str(o) for o in options if o not in taken]
-    close = difflib.get_close_matches(name, free, n=1, cutoff=0.6)
-    if close:
+    key = name.strip().casefold()
+    # the name with a prefix or suffix joined by "_", "-", ".", ":" or a blank (a site
+    # code or logger name before each column name, "QMG_fc" for "fc"; layouts31: the
+    # file's columns were listed, none suggested)
+    joined = [o for o in free if len(key) >= 2 and (
+        re.fullmatch(r".+[_\-.: ]" + re.escape(key), o.strip().casefold())
+        or re.fullmatch(re.escape(key) + r"[_\-.: ].+", o.strip().casefold()))]
+    # the name itself with other blanks around it, or in another case ("CO2_FLUX" for
+    # "co2_flux", which difflib scores as far apart) comes before any nearer-looking
+    # name: a "co2_flux_open" beside it was suggested instead (layouts34)
+    same = ([o for o in free if o.strip() == name.strip()]
+            or [o for o in free if o.strip().casefold() == key])
+    close = same[:1] or difflib.get_close_matches(name, free, n=1, cutoff=0.6)
+    if close and not same:
         # columns as near as the nearest (TS_1, TS_2, TS_3 for "TS": soil temperatures at
         # several depths) are all named, in file order: the nearest alone was the last in
         # alphabetical order, a choice the file does not make
@@ -4186,21 +4263,16 @@ def _near(name: str, options: list, taken=()) -> str:
         if len(tied) > 1:
             return (" (did you mean one of " + ", ".join(repr(o) for o in tied[:6])
                     + "? as near as each other: map the one you mean)")
+    if len(joined) > 1 and not same:
+        # several columns carry the name with another prefix or suffix (a profile's
+        # heights, tair_2m / tair_10m / tair_30m; two analysers, fc_open / fc_closed):
+        # the nearest by difflib was the shortest, a choice the file does not make and
+        # one that moves the budget (layouts34), so every one is named
+        shown = joined[:6] + [c for c in close if c not in joined]
+        return (" (did you mean one of " + ", ".join(repr(o) for o in shown)
+                + f"? {len(joined)} columns carry the name with another prefix or suffix "
+                "(heights, depths, instruments or statistics?): map the one you mean)")
     if not close:
-        stripped = [o for o in free if o.strip() == name.strip()]
-        close = stripped[:1]
-    if not close:
-        # another case ("CO2_FLUX" for "co2_flux"), which difflib scores as far apart
-        folded = [o for o in free if o.strip().casefold() == name.strip().casefold()]
-        close = folded[:1]
-    if not close:
-        # the name with a prefix or suffix joined by "_", "-", ".", ":" or a blank (a site
-        # code or logger name before each column name, "QMG_fc" for "fc"; layouts31: the
-        # file's columns were listed, none suggested)
-        key = name.strip().casefold()
-        joined = [o for o in free if len(key) >= 2 and (
-            re.fullmatch(r".+[_\-.: ]" + re.escape(key), o.strip().casefold())
-            or re.fullmatch(re.escape(key) + r"[_\-.: ].+", o.strip().casefold()))]
         if len(joined) == 1:
             start = joined[0].strip().casefold().find(key)
             extra = joined[0].strip()[:start] if start > 0 else \

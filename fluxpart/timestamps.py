@@ -1671,7 +1671,12 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         row = int(backwards[0]) + 1
         back_days = -float(steps[row - 1]) / 86400.0
         swapped = _runs_in_reverse_order(stamps, backwards)
-        if swapped:
+        if steps.size >= 2 and backwards.size >= 0.99 * steps.size:
+            # a whole file written newest first (an export sorted descending; layouts34:
+            # named as one step back, as if one record were out of place)
+            hint = (f"{backwards.size} of its {steps.size} steps go backwards: the file is "
+                    "written newest first; sort a copy of the file oldest first")
+        elif swapped:
             hint = swapped
         elif _day_month_mixed(stamps):
             hint = ("read with the day and the month exchanged, the stamps whose day is 12 "

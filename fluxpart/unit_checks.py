@@ -99,6 +99,11 @@ _MIN_ACTIVE_RECORDS = 24
 #: radiation: a pyranometer's night thermal offset is 0 to about -10 W m-2 (m), while net
 #: radiation at night is -30 to -100 W m-2 under a clear sky and near 0 under cloud (m).
 _NIGHT_RG_FLOOR = -20.0
+#: Median [W m-2] of the records without sun below which a radiation column too dark by
+#: day is named as possibly net radiation too: beyond a pyranometer's night thermal offset
+#: (0 to about -10 W m-2 (m), as above), which a PAR sensor, a shaded or a soiled one keeps
+#: (layouts34: net radiation of a cloudy site, -15 W m-2 at night, was named as PAR alone)
+_NIGHT_NET_HINT = -10.0
 #: Median air temperature [°C] of 30 days that no place on Earth reaches: the warmest
 #: monthly means measured are 42.3 °C (Death Valley, July 2018, 108.1 °F (m)) and about
 #: 42.5 °C (July 2024 (m)), which the former 42 °C refused as °F (review, round ten); 45 °C
@@ -1147,10 +1152,14 @@ def _too_dark_message(name: str, converted: dict, units: dict, columns: dict,
                 "W m-2: map the column as rg in [input.columns] instead of ppfd (or list "
                 "ppfd in [input] accept_units)")
     else:
-        text = (f"column {columns['rg']!r} (rg): {found}; the values look like PAR in W m-2 "
-                "(about 0.46 of global radiation) or a shaded or soiled sensor: map global "
-                "(incoming short-wave) radiation as rg, or PPFD as ppfd (or list rg in "
-                "[input] accept_units)")
+        night = float(np.median(values[dark]))
+        net = (f"net radiation (with the sun down its median is {night:.0f} W m-2, below a "
+               "pyranometer's thermal offset of a few W m-2), " if night < _NIGHT_NET_HINT
+               else "")
+        text = (f"column {columns['rg']!r} (rg): {found}; the values look like {net}PAR in "
+                "W m-2 (about 0.46 of global radiation) or a shaded or soiled sensor: map "
+                "global (incoming short-wave) radiation as rg, or PPFD as ppfd (or list rg "
+                "in [input] accept_units)")
     if int(np.isfinite(values).sum()) * interval_minutes >= _TOO_DARK_MIN_DAYS * 24 * 60:
         return text, None
     return None, (text + f"; over less than {_TOO_DARK_MIN_DAYS} days a sky overcast or "

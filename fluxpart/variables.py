@@ -144,7 +144,9 @@ _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
     "tair": _TEMPERATURE,
     "tsoil": _TEMPERATURE,
     "vpd": {"hPa": (1.0, 0.0), "mbar": (1.0, 0.0), "kPa": (10.0, 0.0), "Pa": (0.01, 0.0)},
-    "ustar": {"m s-1": (1.0, 0.0), "m/s": (1.0, 0.0)},
+    # centimetres per second: some sonic programs and older records write u* so
+    # (1 cm s-1 = 0.01 m s-1, SI; layouts34: refused with no unit to declare)
+    "ustar": {"m s-1": (1.0, 0.0), "m/s": (1.0, 0.0), "cm s-1": (0.01, 0.0)},
     "rh": {"%": (1.0, 0.0), "fraction": (100.0, 0.0), "1": (100.0, 0.0),
            "0.1 %": (0.1, 0.0)},          # tenths of a percent as whole numbers (layouts32)
     "nee_flag": {"1": (1.0, 0.0)},
@@ -156,7 +158,7 @@ _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
 #: Units of whole numbers counting a tenth or hundredth of the canonical unit (a logger's
 #: integer storage; round layouts32) -> the divisor applied
 DIVIDED_UNITS = {"0.1 °C": 10.0, "0.1 degC": 10.0, "0.01 °C": 100.0, "0.01 degC": 100.0,
-                 "0.1 %": 10.0}
+                 "0.1 %": 10.0, "cm s-1": 100.0}
 
 #: Units of an amount per record interval rather than a rate: (variable, unit) whose
 #: scale is divided by the interval in seconds (``"MJ m-2"`` of Rg = energy received
