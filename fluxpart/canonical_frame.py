@@ -17,12 +17,15 @@ from typing import NamedTuple
 import numpy as np
 import pandas as pd
 
-from . import gapfill, timestamps
+from . import frame_stamps, gapfill, timestamps
 from ._validate import unique_columns
 from .config import Config
 from .errors import ConfigError, FluxpartError, MissingColumnError, SpacingError
 from .site import Site
 from .variables import REQUIRED, VARIABLES
+
+_NOT_STAMPED = ("the frame's index must be a DatetimeIndex of interval starts (local standard "
+                "time), got ")
 
 
 def checked_config(config) -> Config:
@@ -110,8 +113,8 @@ def validate(frame: pd.DataFrame) -> int:
     if not isinstance(frame, pd.DataFrame):
         raise FluxpartError(f"process() needs a pandas DataFrame, got {type(frame).__name__}")
     if not isinstance(frame.index, pd.DatetimeIndex):
-        raise SpacingError("the frame's index must be a DatetimeIndex of interval starts "
-                           f"(local standard time), got {type(frame.index).__name__}")
+        raise SpacingError(_NOT_STAMPED + f"{type(frame.index).__name__}"
+                           + frame_stamps.index_hint(frame))
     if frame.index.tz is not None:
         raise SpacingError(f"the frame's index carries the time zone {frame.index.tz}; use "
                            "tz-naive local standard time and give Site.utc_offset")
@@ -130,7 +133,7 @@ def validate(frame: pd.DataFrame) -> int:
     if (steps <= 0).any():
         row = int(np.flatnonzero(steps <= 0)[0]) + 1
         raise SpacingError(f"timestamps are not strictly increasing at row {row} "
-                           f"({frame.index[row]})")
+                           f"({frame.index[row]})" + frame_stamps.order_hint(frame.index, row))
     if not (steps == steps[0]).all() or steps[0] not in (1800, 3600):
         row = int(np.flatnonzero(steps != steps[0])[0]) + 1 if not (steps == steps[0]).all() else 1
         raise SpacingError(f"records must be regularly spaced by 30 or 60 minutes (insert NaN "
@@ -161,6 +164,12 @@ def prepare(frame, site: Site) -> tuple:
         The canonical record.
     notes : list of str
         Warnings on what was changed (time zone, columns left out, infinities).
+
+    Raises
+    ------
+    SpacingError
+        If the index is not a DatetimeIndex: before the other columns are left out, so
+        that a column holding the stamps is named (:func:`fluxpart.frame_stamps.index_hint`).
     """
     notes = []
     if not isinstance(frame, pd.DataFrame):
@@ -171,6 +180,9 @@ def prepare(frame, site: Site) -> tuple:
                      f"standard time UTC{site.utc_offset:+g} h (Site.utc_offset)")
         frame = frame.set_axis(frame.index.tz_convert(zone).tz_localize(None), axis=0)
     require_columns(frame)        # before other columns are left out: name them all
+    if not isinstance(frame.index, pd.DatetimeIndex):
+        raise SpacingError(_NOT_STAMPED + f"{type(frame.index).__name__}"
+                           + frame_stamps.index_hint(frame))   # a column of stamps named
     unknown = [c for c in frame.columns if c not in VARIABLES]
     if unknown:
         notes.append(f"column(s) {', '.join(map(repr, map(str, unknown)))} are not canonical "

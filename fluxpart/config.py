@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import datetime
 import difflib
+import inspect
 import json
 import math
 from dataclasses import asdict, dataclass, fields
@@ -18,7 +19,7 @@ from typing import NamedTuple
 from ._validate import read_toml
 from .errors import ConfigError
 
-__all__ = ["Config", "setting_text", "suggest_key"]
+__all__ = ["Config", "UnknownSettingError", "setting_text", "suggest_key"]
 
 
 @dataclass(frozen=True)
@@ -633,6 +634,36 @@ class Config:
         if not self.events:
             del out["events"]
         return out
+
+
+class UnknownSettingError(ConfigError, TypeError):
+    """A keyword of ``Config(...)`` that is no setting: a :class:`ConfigError` naming it
+    with the nearest setting, and a :class:`TypeError` as Python's own refusal of an
+    unexpected keyword argument is (so code catching either still does)."""
+
+
+def _keyword_checked(dataclass_init):
+    """Wrap the dataclass ``__init__`` so that an unknown keyword is named with a hint.
+
+    ``Config(ustar_methd="fixed")`` stopped with Python's "got an unexpected keyword
+    argument 'ustar_methd'", which ``Config.from_mapping`` (a site config's
+    ``[processing]``) answers with the setting meant (round mistakes37).
+    """
+    def __init__(self, *args, **kwargs):
+        names = [f.name for f in fields(Config)]
+        for key in kwargs:
+            if key not in names:
+                raise UnknownSettingError(f"Config({key}=...): unknown setting"
+                                          f"{_key_hint(key, names)}")
+        dataclass_init(self, *args, **kwargs)
+
+    __init__.__doc__ = dataclass_init.__doc__
+    __init__.__signature__ = inspect.signature(dataclass_init)
+    __init__.__wrapped__ = dataclass_init
+    return __init__
+
+
+Config.__init__ = _keyword_checked(Config.__init__)
 
 
 def _key_hint(key: str, names) -> str:

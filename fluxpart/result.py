@@ -80,6 +80,20 @@ class Result:
     warnings: tuple = ()
     provenance: dict = field(default_factory=dict)
 
+    def __post_init__(self):
+        # the tables as computed (lazy copies), for write() to refuse tables changed since
+        from .result_edits import kept_tables
+        object.__setattr__(self, "_as_computed", kept_tables(self.tables()))
+
+    def __getstate__(self):
+        state = dict(self.__dict__)
+        state.pop("_as_computed", None)         # not pickled twice: made again on load
+        return state
+
+    def __setstate__(self, state):
+        self.__dict__.update(state)
+        self.__post_init__()
+
     def __repr__(self) -> str:
         years = ", ".join(str(year) for year in self.annual.index)
         return (f"<fluxpart.Result {self.site.name!r}, {len(self.timeseries)} records, "
@@ -139,9 +153,24 @@ class Result:
         earlier result or this one, never a mix; a second writer of the same
         folder waits up to `lock_timeout` seconds (default 600); `lock_held`: the
         caller holds the folder's lock already. Returns the folder.
+
+        Raises :class:`~fluxpart.errors.OutputError` where a table was changed after the
+        run (a sum converted in place, a column added): the folder would hold numbers
+        fluxpart did not compute under its descriptions and seal
+        (:func:`fluxpart.result_edits.changed_tables`).
         """
+        from .errors import OutputError
+        from .result_edits import changed_tables
         from .resultdir import DEFAULT_LOCK_TIMEOUT, write_folder
 
+        changed = changed_tables(getattr(self, "_as_computed", {}), self.tables())
+        if changed:
+            raise OutputError(
+                f"Result.write: table(s) changed after the run: {', '.join(changed)}; a "
+                "result folder holds the tables fluxpart computed, described and sealed as "
+                "such (verify would vouch for the changed numbers): write your own tables "
+                "elsewhere (e.g. table.to_parquet(path)) and this result as it was computed "
+                "(process it again, or change a copy: result.annual.copy())")
         return write_folder(directory, self.tables(), site=self.site.to_dict(),
                             config=self.config.to_dict(), seed=self.config.seed,
                             provenance=self.provenance, warnings=self.warnings,

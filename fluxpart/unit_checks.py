@@ -52,6 +52,7 @@ from .variables import (
 __all__ = [
     "IMPLAUSIBLE_SHARE",
     "MIN_DAYS_FOR_UNIT_CHECKS",
+    "frame_code_messages",
     "frame_messages",
     "frame_refusal",
     "implausible_message",
@@ -1398,6 +1399,7 @@ def frame_messages(frame, potential=None, interval_minutes: int = 30,
     flag = _flag_rejects_most(frame, _FLAG_REJECTS_MOST)
     if flag:
         found.append(flag)
+    found.extend(frame_code_messages(converted))
     if "nee" in converted:
         # another quantity on some days: the reader names it for files (round mistakes35)
         from .foreign_days import foreign_days
@@ -1411,6 +1413,58 @@ def frame_messages(frame, potential=None, interval_minutes: int = 30,
     kept = [message for name, message in refusals.items() if name not in accept_units]
     for message in [*found, *kept, *suspicions]:
         lines.append(_frame_text(message, interval_minutes))
+    return lines
+
+
+#: Least number of times a value outside a column's plausible range must occur in a
+#: caller's frame to be named as a missing-data code [records]: the reader's rule of an
+#: undeclared code (:func:`implausible_message`, a logger's code repeats exactly).
+_FRAME_CODE_MIN_COUNT = 3
+
+
+def frame_code_messages(converted: dict) -> list:
+    """A logger's missing-data code left in a caller's frame, named per column.
+
+    The file reader reads -9999 (and the codes of ``[input] missing``) as missing; a
+    frame built by hand from a logger file (``pandas.read_csv`` without ``na_values``)
+    keeps them as numbers. Screening rejects them as out of range, but nothing named
+    them, and before round mistakes37 an Rg of -9999 by day made the record night
+    (:func:`fluxpart.screening_stage.night_rg`). A value outside the column's plausible
+    range (:data:`fluxpart.variables.READER_VARIABLES`) occurring
+    :data:`_FRAME_CODE_MIN_COUNT` times or more is named: a measured quantity is
+    continuous and does not repeat one impossible value exactly.
+
+    Parameters
+    ----------
+    converted : dict
+        Canonical name -> values in the canonical unit (float, NaN = missing).
+
+    Returns
+    -------
+    list of str
+        One line per column holding such a value, with its count and the fix.
+
+    References
+    ----------
+    Papale, D. et al. (2006). Towards a standardized processing of Net Ecosystem
+    Exchange measured with eddy covariance technique. Biogeosciences 3, 571-583
+    (physically plausible ranges screened before any processing) (m).
+    """
+    lines = []
+    for name, values in converted.items():
+        variable = READER_VARIABLES.get(name)
+        if variable is None:
+            continue
+        present = values[np.isfinite(values)]
+        code, count = most_repeated(present[_outside(name, present)])
+        if count < _FRAME_CODE_MIN_COUNT:
+            continue
+        lines.append(f"column {name!r}: the value {code:g} occurs {count} times "
+                     f"({count / present.size:.1%} of its values), outside the plausible "
+                     f"range [{variable.minimum:g}, {variable.maximum:g}] {variable.unit}: a "
+                     "logger's missing-data code, read as missing; replace it with NaN in "
+                     f"the frame (frame.replace({code:g}, numpy.nan)) so that no value of "
+                     "it is taken for a reading")
     return lines
 
 

@@ -450,3 +450,21 @@ def test_an_event_refused_among_several_is_named():
     with pytest.raises(ConfigError, match=r'\[processing\] events = "2021-02-30" is not '
                                           r'allowed: expected'):
         Config(events="2021-02-30")
+
+
+def test_a_misspelt_keyword_of_config_is_named_with_the_setting_meant():
+    """Round mistakes37: ``Config(ustar_methd="fixed")`` stopped with Python's bare
+    "unexpected keyword argument"; it is now a ConfigError naming the setting meant, and
+    still a TypeError, as the Python language reference has an unexpected keyword
+    argument raise (Python reference, "Calls" (m)), so code catching either works."""
+    from fluxpart.config import UnknownSettingError
+
+    with pytest.raises(UnknownSettingError, match=r"Config\(ustar_methd=\.\.\.\).*'ustar_method'"):
+        Config(ustar_methd="fixed")
+    with pytest.raises(TypeError, match="'seed'.*case-sensitive"):
+        Config(Seed=2)
+    with pytest.raises(ConfigError):
+        Config(seeed=1)
+    # the valid keywords, positional use and dataclasses.replace are as before
+    assert Config(3).seed == 3
+    assert dataclasses.replace(Config(seed=1), seed=2) == Config(seed=2)
