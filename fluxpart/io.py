@@ -1070,14 +1070,19 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                 f"{' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)}; "
                 f"the flags hold {[f'{v:g}' for v in flag_values]}: set [input] flag_accept to "
                 "the values that mean a good record (or remove nee_flag from [input.columns])")
-        if judged >= 48 and flag_rejected > _FLAG_REFUSE * judged:
+        # judged over the records with an NEE value (review41: a flag that marks every
+        # record without NEE bad, as many processing programs write it, at a tower whose
+        # NEE starts late in the year was refused as a flag of the other scale)
+        with_nee = measured & np.isfinite(converted["nee_flag"])
+        judged_nee = int(with_nee.sum())
+        if judged_nee >= 48 and flag_rejected_with_nee > _FLAG_REFUSE * judged_nee:
             # layouts33: a flag of the other scale (2 good, 0 bad) under flag_accept = [0]
             # kept 25 of 17520 records with a warning and the run stopped at the
             # partitioning, naming missing night records; process() refuses such a
             # frame's flag (unit_checks.frame_refusal), the reader now does too
             raise ImplausibleValueError(_flag_scale_message(
-                [combined["values"][_flag_key(c)] for c in flag_columns], flag_columns,
-                flag_accept, flag_rejected, judged))
+                [combined["values"][_flag_key(c)][with_nee] for c in flag_columns],
+                flag_columns, flag_accept, flag_rejected_with_nee, judged_nee))
 
     order = [name for name in VARIABLES if name in converted]
     frame = pd.DataFrame({name: converted[name].astype(np.float64) for name in order},
@@ -3903,13 +3908,13 @@ def _flag_scale_message(flags: list, flag_columns: list, flag_accept, rejected: 
     Parameters
     ----------
     flags : list of numpy.ndarray
-        The flag columns' values as read [-].
+        The flag columns' values as read, at the records with an NEE value [-].
     flag_columns : list of str
         Their names in the file.
     flag_accept : sequence of float
         ``[input] flag_accept`` [-].
     rejected, judged : int
-        Records the flags reject, and records with a flag [-].
+        Records with an NEE value the flags reject, and those with a flag [-].
 
     Returns
     -------
@@ -3925,8 +3930,8 @@ def _flag_scale_message(flags: list, flag_columns: list, flag_accept, rejected: 
     values, counts = np.unique(held, return_counts=True)
     order = np.argsort(-counts, kind="stable")[:6]
     shown = ", ".join(f"{values[i]:g} in {counts[i]}" for i in order)
-    return (f"nee_flag: {rejected} of {judged} records ({rejected / judged:.1%}) are rejected "
-            f"by {' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)} "
+    return (f"nee_flag: {rejected} of {judged} records with an NEE value "
+            f"({rejected / judged:.1%}) are rejected by {' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)} "
             f"(the flags hold {shown} records): either flag_accept names the values of bad "
             "records (a flag of the other scale, a higher value for a better record), or the "
             "site's own checks reject nearly every record, which leaves no budget (towers "
