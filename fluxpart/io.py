@@ -2357,7 +2357,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             header_line = next(iter(text.splitlines()[rows_before_header:]), "")
             found = re.search(r"Expected (\d+) fields in line (\d+), saw", str(error))
             closed = found and _closed_from(text, int(found.group(2)), int(found.group(1)),
-                                            delimiter)
+                                            delimiter,
+                                            rows_before_header + rows_after_header + 2)
             if closed:
                 closed = f"input file {str(path)!r}: {closed}"
                 # every line from there on ends with the delimiter, the field after it
@@ -2778,16 +2779,32 @@ def _field_count(line: str, delimiter: str) -> int:
 _CHANGED_LAYOUT_LINES = 24
 
 
-def _closed_from(text: str, line: int, width: int, delimiter: str) -> str:
+def _closed_from(text: str, line: int, width: int, delimiter: str,
+                 first_data: int | None = None) -> str:
     """The note where every non-blank line from `line` (1-based) to the end holds one field
     more than the header's `width` and ends with the delimiter (the field after it empty),
-    else ''."""
+    else ''.
+
+    Where every record before `line` (from `first_data`, 1-based) ends with the
+    delimiter already (its last column empty throughout, a "note" or alarm column), one
+    empty field more is a column inserted before that column as well as a delimiter
+    closing each line; only the second adds the delimiter after the empty last field,
+    so the lines from `line` must then end with it twice (review41: a column inserted
+    mid-file before an empty last column was read with every later column one to the
+    left, "Ta" holding Rg, and the run named unit mix-ups instead).
+    """
     if delimiter == _WHITESPACE:
         return ""
-    rest = [candidate for candidate in text.splitlines()[line - 1:] if candidate.strip()]
+    lines = text.splitlines()
+    rest = [candidate for candidate in lines[line - 1:] if candidate.strip()]
     if not rest or not all(candidate.endswith(delimiter)
                            and _field_count(candidate, delimiter) == width + 1
                            for candidate in rest):
+        return ""
+    before = [candidate for candidate in lines[(first_data or line) - 1:line - 1]
+              if candidate.strip()]
+    if before and all(candidate.endswith(delimiter) for candidate in before) \
+            and not all(candidate.endswith(delimiter * 2) for candidate in rest):
         return ""
     return (f"every line from line {line} on ({len(rest)} lines) ends with the delimiter "
             f"{delimiter!r}, an empty field after the header's {width}; delete it in a copy "

@@ -8,10 +8,11 @@ the records as written.
 """
 
 import numpy as np
+import pandas as pd
 import pytest
 from test_robustness_layouts18 import _tower
 
-from fluxpart.errors import ImplausibleValueError
+from fluxpart.errors import ImplausibleValueError, InputFileError
 from fluxpart.io import read_table
 from fluxpart.site import Site
 
@@ -50,3 +51,47 @@ def test_a_flag_bad_where_nee_is_missing_is_judged_over_the_records_with_nee(tmp
         _read(tmp_path / "b.csv")
     assert "records with an NEE value" in str(caught.value)
     assert "a flag of the other scale" in str(caught.value)
+
+
+def _with_note(tmp_path):
+    """An invented end-stamped tower file with an always-empty last column ("note"):
+    every record ends with the delimiter, its last field empty."""
+    _, records = _tower(periods=48 * 20)
+    records["note"] = ""
+    plain = tmp_path / "plain.csv"
+    records.to_csv(plain, index=False)
+    return plain, plain.read_text(encoding="utf-8").splitlines()
+
+
+def test_a_column_inserted_before_an_empty_last_column_stays_refused(tmp_path):
+    """A logger program inserted a column ("ts2") after "fc" from mid-file on, in a file
+    whose last column is always empty: every later line holds one field more and ends
+    with the delimiter, as a delimiter closing each line would. layouts34 read it as a
+    closing delimiter, so every column after "fc" was read one to the left (us holding
+    the new column, sw holding us; the run then named unit mix-ups). Every earlier record
+    ends with the delimiter too, so a closing one would end the later lines with two:
+    the file is refused as a column added (known truth: the layout written). A closing
+    delimiter after the empty note (",,") is still read as no column, the records as
+    written (known truth)."""
+    plain, lines = _with_note(tmp_path)
+    assert all(line.endswith(",") for line in lines[1:])
+    columns = {k: v for k, v in COLUMNS.items() if k != "nee_flag"}
+    inserted = tmp_path / "inserted.csv"
+    later = []
+    for line in lines[501:]:
+        fields = line.split(",")
+        fields.insert(2, "7.7")
+        later.append(",".join(fields))
+    inserted.write_text("\n".join(lines[:501] + later) + "\n", encoding="utf-8")
+    with pytest.raises(InputFileError, match="a logger program that added a column"):
+        read_table(inserted, columns=columns, time_column="stamp",
+                   time_format="%Y-%m-%d %H:%M", time_marks="end", site=SITE)
+    closed = tmp_path / "closed.csv"
+    closed.write_text("\n".join(lines[:501] + [line + "," for line in lines[501:]]) + "\n",
+                      encoding="utf-8")
+    options = {"columns": columns, "time_column": "stamp", "time_format": "%Y-%m-%d %H:%M",
+               "time_marks": "end", "site": SITE}
+    expected, _ = read_table(plain, **options)
+    table, report = read_table(closed, **options)
+    pd.testing.assert_frame_equal(table, expected)
+    assert any("read as no column" in w for w in report.warnings)
