@@ -95,3 +95,23 @@ def test_a_column_inserted_before_an_empty_last_column_stays_refused(tmp_path):
     table, report = read_table(closed, **options)
     pd.testing.assert_frame_equal(table, expected)
     assert any("read as no column" in w for w in report.warnings)
+
+
+def test_a_wind_speed_mapped_as_ustar_is_not_told_to_declare_cm_per_second():
+    """Wind speed at tower height follows a Weibull distribution of shape about 2
+    (common practice); a windy site's (scale 5.5 m s-1, median 4.6 m s-1) mapped as
+    ustar lies 40 % beyond 5 m s-1. Since u* in cm s-1 was accepted (layouts34) the
+    refusal said "the values look like 'cm s-1'", which reads it as a median u* of
+    0.046 m s-1, where towers' u* medians are 0.2-0.7 m s-1 (m): now no unit is named
+    below a median of 0.1 m s-1, and the mapping is. A u* written in cm s-1 (invented,
+    median 0.3 m s-1; 1 cm s-1 = 0.01 m s-1, SI) is still told to declare it."""
+    from fluxpart.unit_checks import implausible_message
+
+    rng = np.random.default_rng(3)
+    wind = np.round(5.5 * rng.weibull(2.0, 17520), 2)
+    message = implausible_message("ustar", wind, wind, None, "ws", ())
+    assert message is not None and "cm s-1" not in message
+    assert "check the column mapping" in message
+    ustar_cm = np.round(100 * rng.lognormal(np.log(0.3), 0.5, 17520), 1)
+    message = implausible_message("ustar", ustar_cm, ustar_cm, None, "us", ())
+    assert "set [input.units] ustar = \"cm s-1\"" in message
