@@ -1070,14 +1070,19 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                 f"{' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)}; "
                 f"the flags hold {[f'{v:g}' for v in flag_values]}: set [input] flag_accept to "
                 "the values that mean a good record (or remove nee_flag from [input.columns])")
-        if judged >= 48 and flag_rejected > _FLAG_REFUSE * judged:
+        # judged over the records with an NEE value (review41: a flag that marks every
+        # record without NEE bad, as many processing programs write it, at a tower whose
+        # NEE starts late in the year was refused as a flag of the other scale)
+        with_nee = measured & np.isfinite(converted["nee_flag"])
+        judged_nee = int(with_nee.sum())
+        if judged_nee >= 48 and flag_rejected_with_nee > _FLAG_REFUSE * judged_nee:
             # layouts33: a flag of the other scale (2 good, 0 bad) under flag_accept = [0]
             # kept 25 of 17520 records with a warning and the run stopped at the
             # partitioning, naming missing night records; process() refuses such a
             # frame's flag (unit_checks.frame_refusal), the reader now does too
             raise ImplausibleValueError(_flag_scale_message(
-                [combined["values"][_flag_key(c)] for c in flag_columns], flag_columns,
-                flag_accept, flag_rejected, judged))
+                [combined["values"][_flag_key(c)][with_nee] for c in flag_columns],
+                flag_columns, flag_accept, flag_rejected_with_nee, judged_nee))
 
     order = [name for name in VARIABLES if name in converted]
     frame = pd.DataFrame({name: converted[name].astype(np.float64) for name in order},
@@ -2352,7 +2357,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             header_line = next(iter(text.splitlines()[rows_before_header:]), "")
             found = re.search(r"Expected (\d+) fields in line (\d+), saw", str(error))
             closed = found and _closed_from(text, int(found.group(2)), int(found.group(1)),
-                                            delimiter)
+                                            delimiter,
+                                            rows_before_header + rows_after_header + 2)
             if closed:
                 closed = f"input file {str(path)!r}: {closed}"
                 # every line from there on ends with the delimiter, the field after it
@@ -2773,16 +2779,32 @@ def _field_count(line: str, delimiter: str) -> int:
 _CHANGED_LAYOUT_LINES = 24
 
 
-def _closed_from(text: str, line: int, width: int, delimiter: str) -> str:
+def _closed_from(text: str, line: int, width: int, delimiter: str,
+                 first_data: int | None = None) -> str:
     """The note where every non-blank line from `line` (1-based) to the end holds one field
     more than the header's `width` and ends with the delimiter (the field after it empty),
-    else ''."""
+    else ''.
+
+    Where every record before `line` (from `first_data`, 1-based) ends with the
+    delimiter already (its last column empty throughout, a "note" or alarm column), one
+    empty field more is a column inserted before that column as well as a delimiter
+    closing each line; only the second adds the delimiter after the empty last field,
+    so the lines from `line` must then end with it twice (review41: a column inserted
+    mid-file before an empty last column was read with every later column one to the
+    left, "Ta" holding Rg, and the run named unit mix-ups instead).
+    """
     if delimiter == _WHITESPACE:
         return ""
-    rest = [candidate for candidate in text.splitlines()[line - 1:] if candidate.strip()]
+    lines = text.splitlines()
+    rest = [candidate for candidate in lines[line - 1:] if candidate.strip()]
     if not rest or not all(candidate.endswith(delimiter)
                            and _field_count(candidate, delimiter) == width + 1
                            for candidate in rest):
+        return ""
+    before = [candidate for candidate in lines[(first_data or line) - 1:line - 1]
+              if candidate.strip()]
+    if before and all(candidate.endswith(delimiter) for candidate in before) \
+            and not all(candidate.endswith(delimiter * 2) for candidate in rest):
         return ""
     return (f"every line from line {line} on ({len(rest)} lines) ends with the delimiter "
             f"{delimiter!r}, an empty field after the header's {width}; delete it in a copy "
@@ -3903,13 +3925,13 @@ def _flag_scale_message(flags: list, flag_columns: list, flag_accept, rejected: 
     Parameters
     ----------
     flags : list of numpy.ndarray
-        The flag columns' values as read [-].
+        The flag columns' values as read, at the records with an NEE value [-].
     flag_columns : list of str
         Their names in the file.
     flag_accept : sequence of float
         ``[input] flag_accept`` [-].
     rejected, judged : int
-        Records the flags reject, and records with a flag [-].
+        Records with an NEE value the flags reject, and those with a flag [-].
 
     Returns
     -------
@@ -3925,8 +3947,8 @@ def _flag_scale_message(flags: list, flag_columns: list, flag_accept, rejected: 
     values, counts = np.unique(held, return_counts=True)
     order = np.argsort(-counts, kind="stable")[:6]
     shown = ", ".join(f"{values[i]:g} in {counts[i]}" for i in order)
-    return (f"nee_flag: {rejected} of {judged} records ({rejected / judged:.1%}) are rejected "
-            f"by {' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)} "
+    return (f"nee_flag: {rejected} of {judged} records with an NEE value "
+            f"({rejected / judged:.1%}) are rejected by {' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)} "
             f"(the flags hold {shown} records): either flag_accept names the values of bad "
             "records (a flag of the other scale, a higher value for a better record), or the "
             "site's own checks reject nearly every record, which leaves no budget (towers "

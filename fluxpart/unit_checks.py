@@ -294,9 +294,18 @@ def _rh_fraction(rh: np.ndarray) -> bool:
     return present.size >= 48 and float(np.max(present)) <= 1.05
 
 
+#: Least median [canonical unit] of a record read in another unit for that unit to be
+#: named (review41). u*: a wind speed mapped as ustar (a year's median 1.5 to 5-6 m s-1
+#: at towers over land, :mod:`fluxpart.preflight` (m)) was told to declare u* in cm s-1,
+#: which reads it as a median u* of 0.015-0.06 m s-1, where towers' u* medians are
+#: 0.2-0.7 m s-1 (m); our choice: 0.1 m s-1, about the geometric mean of 0.06 and 0.2.
+_LEAST_MEDIAN = {"ustar": 0.1}
+
+
 def _better_units(name: str, raw_present: np.ndarray, declared,
                   interval_minutes: int = 30) -> list:
-    """Accepted units (other than `declared`) under which the values are plausible, best first."""
+    """Accepted units (other than `declared`) under which the values are plausible, best
+    first; none under which the median falls below :data:`_LEAST_MEDIAN`."""
     probe = np.array([1.0, 2.0])
     declared_probe = to_canonical(probe, name, declared, interval_minutes=interval_minutes)
     candidates, seen = [], []
@@ -309,6 +318,8 @@ def _better_units(name: str, raw_present: np.ndarray, declared,
             continue
         seen.append(converted_probe)
         values = to_canonical(raw_present, name, unit, interval_minutes=interval_minutes)
+        if name in _LEAST_MEDIAN and np.median(values) < _LEAST_MEDIAN[name]:
+            continue
         if _outside(name, values).mean() <= 0.01 and not _outside(
                 name, np.array([np.median(values)]))[0]:
             scale = max(float(np.percentile(np.abs(values), 90)), 1e-12)

@@ -50,8 +50,8 @@ def test_the_example_with_its_flag_inverted_is_refused_naming_the_flag(tmp_path)
     written for the rejected records, 2 for the good ones): the run stopped naming only
     the partitionings' want of night records ("supply measured night NEE"), not the flag
     (round mistakes25 left it so). Since round layouts33 the reader refuses a flag that
-    rejects more than 95 % of the records before any stage runs, naming the flag's share
-    and `flag_accept`; `flag_cause` names it where a stage's refusal comes first (a flag
+    rejects more than 95 % of the records (with NEE, since review41) before any stage
+    runs, naming the flag's share and `flag_accept`; `flag_cause` names it where a stage's refusal comes first (a flag
     rejecting more than half, tested above on a frame)."""
     frame = pd.read_csv(EXAMPLES / "quillmoor_grassland.csv", dtype={"stamp_end": str})
     frame["qc_co2"] = np.where(frame["qc_co2"] == 0, 2, 0)
@@ -63,7 +63,7 @@ def test_the_example_with_its_flag_inverted_is_refused_naming_the_flag(tmp_path)
             process_site_config(tmp_path / "quillmoor_grassland.toml")
     message = str(caught.value)
     assert message.startswith("nee_flag: ")
-    assert "(99.9%) are rejected by qc_co2" in message
+    assert "of 11168 records with an NEE value (99.8%) are rejected by qc_co2" in message
     assert "set [input] flag_accept" in message
 
 

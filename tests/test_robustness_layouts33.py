@@ -180,7 +180,8 @@ def test_a_flag_of_the_other_scale_is_refused_naming_both_readings(tmp_path):
         _read(tmp_path / "a.csv", columns=columns)
     message = str(caught.value)
     assert len(message.splitlines()) == 1
-    assert message.startswith("nee_flag: 956 of 960 records (99.6%) are rejected by qc "
+    assert message.startswith("nee_flag: 956 of 960 records with an NEE value (99.6%) "
+                              "are rejected by qc "
                               "with [input] flag_accept = [0] (the flags hold 2 in 956, "
                               "0 in 4 records)")
     assert "a flag of the other scale" in message
