@@ -2295,6 +2295,11 @@ def shaded_rg(rg, potential, stamps, columns=None) -> str | None:
     grouped = cells.groupby(["month", "distance", "afternoon"])["clearness"]
     upper, lower = (grouped.quantile(share / 100.0) for share in _SHADE_PERCENTILES)
     table = pd.DataFrame({"count": grouped.size(), "clear": upper, "lower": lower}).unstack()
+    if not {False, True} <= set(table["count"].columns):
+        # one half of the day only: the potential radiation peaks at the first or last
+        # record of every day (stamps or utc_offset about 12 h off; the clock check names
+        # it), so no morning is compared with an afternoon
+        return None
     table = table.dropna()
     table = table[(table["count"][False] >= _SHADE_MIN_RECORDS)
                   & (table["count"][True] >= _SHADE_MIN_RECORDS)]

@@ -1278,3 +1278,21 @@ def test_stretch_scores_are_the_correlations_of_the_finite_pairs():
             assert count == ok.sum()
             expected = np.corrcoef(a[first:][ok], b[first:][ok])[0, 1]
             assert -r == pytest.approx(expected, rel=1e-9)
+
+
+def test_a_sun_at_noon_on_the_day_edge_is_no_shade_and_no_crash():
+    """Round clock11: a site 92.65° W on UTC-6 configured with utc_offset = +6 (the sign
+    wrong) puts the potential radiation's peak at the first or last record of each day
+    (12 h off: 15° of longitude per hour of solar time, a fact of the trade), so every
+    usable record falls in one half of the day. The shade check stopped the run with a
+    pandas ``KeyError: False`` traceback before the clock check could refuse it; now it
+    has nothing to compare and leaves the finding to the clock check. Rg is pvlib's
+    (NREL SPA and Haurwitz clear sky, ``tests/clock_sites.py``)."""
+    from clock_sites import synthetic_rg
+
+    from fluxpart.solar import potential_radiation
+    rg = synthetic_rg(40.41, -92.65, -6.0, interval_minutes=30, days=120, seed=2)
+    potential = potential_radiation(rg.index, 40.41, -92.65, 6.0, 30)
+    peaks = [int(np.argmax(day)) for day in potential.reshape(-1, 48)]
+    assert set(peaks) <= {0, 47}           # the sun's noon at the day's edge
+    assert shaded_rg(rg.to_numpy(), potential, rg.index) is None
