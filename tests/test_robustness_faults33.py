@@ -160,3 +160,44 @@ def test_a_pipe_or_folder_in_place_of_a_table_is_named_without_opening_it(tmp_pa
         with pytest.raises(InputFileError) as caught:
             store.read_table(tmp_path / name)
         assert f"{name}' is {kind}, not a Parquet file" in str(caught.value)
+
+
+def test_a_netcdf_library_not_loaded_is_not_called_missing(monkeypatch):
+    """Under ``ulimit -v`` 450 and 550 MB `export --netcdf` of the grassland example said
+    "writing NetCDF needs netCDF4, or h5netcdf together with h5py ... install the netcdf
+    extra" though h5py was installed: the dynamic loader could not map its HDF5 library
+    ("failed to map segment from shared object", glibc's ``dlopen`` text where ``mmap``
+    is refused (m)). Python raises :class:`ModuleNotFoundError` for an absent module and
+    a plain :class:`ImportError` for one found and not loaded (Python documentation, "The
+    import system" (m)); only the first means "install"."""
+    import builtins
+
+    from fluxpart import export
+    from fluxpart.errors import FluxpartError
+
+    real = builtins.__import__
+
+    def loader(name, *args, **kwargs):
+        if name == "netCDF4":
+            raise ModuleNotFoundError(f"No module named {name!r}")
+        if name == "h5py":
+            raise ImportError("libhdf5-0a1b.so.320.0.0: failed to map segment from shared "
+                              "object")
+        return real(name, *args, **kwargs)
+
+    monkeypatch.setattr(builtins, "__import__", loader)
+    with pytest.raises(FluxpartError) as caught:
+        export._engine()
+    text = str(caught.value)
+    assert "h5py is installed but could not be loaded" in text
+    assert "failed to map segment" in text and "ulimit -v" in text
+    assert "pip install" not in text
+
+    def absent(name, *args, **kwargs):
+        if name in ("netCDF4", "h5netcdf", "h5py"):
+            raise ModuleNotFoundError(f"No module named {name!r}")
+        return real(name, *args, **kwargs)
+
+    monkeypatch.setattr(builtins, "__import__", absent)
+    with pytest.raises(FluxpartError, match="pip install"):
+        export._engine()
