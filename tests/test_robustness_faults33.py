@@ -201,3 +201,26 @@ def test_a_netcdf_library_not_loaded_is_not_called_missing(monkeypatch):
     monkeypatch.setattr(builtins, "__import__", absent)
     with pytest.raises(FluxpartError, match="pip install"):
         export._engine()
+
+
+def test_a_system_call_refused_memory_is_one_line(tmp_path, monkeypatch, capsys):
+    """Under ``ulimit -v`` 600 MB `export` of the grassland example ended in a 35-line
+    traceback (exit 1): importlib listing a package folder for xarray's lazy import got
+    ``OSError: [Errno 12] Cannot allocate memory``. ENOMEM is the system refusing memory
+    (errno(3), ENOMEM "Not enough space / cannot allocate memory" (m)): now the memory
+    line of the CLI, exit 2."""
+    import errno
+
+    from fluxpart import cli
+
+    def refused(args):
+        raise OSError(errno.ENOMEM, os.strerror(errno.ENOMEM),
+                      str(tmp_path / "site-packages" / "dask" / "array" / "lib"))
+
+    monkeypatch.setattr(cli, "_command_export", refused)
+    (tmp_path / "result").mkdir()
+    code = cli.main(["export", "--csv", str(tmp_path / "csv"), str(tmp_path / "result")])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert code == 2
+    assert len(err) == 1 and err[0].startswith("error: ran out of memory")
+    assert "ulimit -v" in err[0]
