@@ -86,6 +86,7 @@ from .schema import TIME_CONVENTION, units_for_table
 from .shared_records import day_keys, shared_days
 from .store import (
     PANDAS_ATTRS_KEY,
+    arrow_table,
     atomic_write_bytes,
     damaged_table,
     file_sha256,
@@ -97,7 +98,6 @@ from .store import (
     set_mode,
     shortage,
     unreadable,
-    unreadable_table,
     write_table,
 )
 from .worker_match import (
@@ -982,7 +982,8 @@ def _network_frame(files: list[Path]) -> pd.DataFrame:
     system refuses hung the read for good (``ulimit -v`` 325-475 MB: `batch`'s client
     never ended) or ended the process before Python could say why (glibc's "cannot
     allocate memory for thread-local data: ABORT", exit 127, up to 700 MB). Each file is
-    decoded as :func:`fluxpart.store.read_table` decodes a site's tables (faults31).
+    read by :func:`fluxpart.store.arrow_table`, as :func:`fluxpart.store.read_table` reads
+    a site's tables.
 
     Parameters
     ----------
@@ -1008,7 +1009,7 @@ def _network_frame(files: list[Path]) -> pd.DataFrame:
     """
     schema, parts = None, []
     for file in files:
-        part = _table_here(file)
+        part = arrow_table(file)
         schema = schema or part.schema
         arrays = [part[f.name].cast(f.type) if f.name in part.column_names
                   else pa.nulls(len(part), f.type) for f in schema]
@@ -1019,33 +1020,6 @@ def _network_frame(files: list[Path]) -> pd.DataFrame:
         return pa.concat_tables(parts).to_pandas(use_threads=False)
     except (pa.ArrowException, MemoryError) as error:
         raise shortage(files[0], error) or damaged_table(files[0], error) from None
-
-
-def _table_here(path: Path, columns=None) -> pa.Table:
-    """The Parquet file `path` (its `columns`, default all) decoded on the calling thread.
-
-    The file's bytes are read by Python and decoded from memory: pyarrow's own reading
-    of a path, an open file or a memory map starts a thread of its I/O pool per file
-    opened (up to 8), a buffer none (measured, pyarrow 26.0).
-
-    Raises
-    ------
-    ResourceShortage
-        Where the system refused memory (or a thread) while reading the file.
-    InputFileError
-        Where the file cannot be read or is no readable Parquet file.
-    """
-    try:
-        data = path.read_bytes()
-    except MemoryError as error:
-        raise shortage(path, error) from None
-    except OSError as error:
-        raise shortage(path, error) or unreadable_table(path, error) from None
-    try:
-        with pq.ParquetFile(pa.BufferReader(data)) as opened:
-            return opened.read(columns=columns, use_threads=False)
-    except (pa.ArrowException, ValueError, OSError, MemoryError) as error:
-        raise shortage(path, error) or damaged_table(path, error) from None
 
 
 def _network_attrs(path: Path) -> dict:
@@ -1584,7 +1558,7 @@ def _same_record_pairs(outcomes) -> list:
         directory = Path(outcome.directory)
         try:
             # on this thread (a thread the system refused hung or ended the batch's client)
-            table = _table_here(directory / "timeseries.parquet",
+            table = arrow_table(directory / "timeseries.parquet",
                                 columns=["time", "nee"]).to_pandas(use_threads=False)
             hashes[outcome.key] = _input_hashes(directory)
             keys[outcome.key] = day_keys(table["time"].to_numpy(), table["nee"].to_numpy())

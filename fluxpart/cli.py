@@ -928,6 +928,14 @@ def main(argv=None) -> int:
                   "this shell was in it), so relative paths cannot be found: cd to an "
                   "existing folder, or give absolute paths", file=sys.stderr)
             return 2
+        if error.errno == errno.ENOMEM:
+            # the system refused memory to a system call (importlib listing a package
+            # folder under ulimit -v 600 MB in `export`: a 35-line traceback, exit 1)
+            print(f"error: ran out of memory ({error.strerror}; a memory limit of this "
+                  "process: ulimit -v, a container's or a batch job's); "
+                  f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
+                  "memory", file=sys.stderr)
+            return 2
         if error.errno == errno.ELOOP:
             print(f"error: the path {str(error.filename or '')!r} leads through a symbolic "
                   f"link back to itself ({os.strerror(errno.ELOOP)}); fix or remove the link, "

@@ -135,16 +135,46 @@ def _engine() -> str:
     # h5netcdf reads and writes through h5py, which its recent releases no longer install
     # themselves (their package metadata lists h5py under an extra of their own): without
     # it the write failed deep in xarray with a traceback
+    refused = None
     for modules, engine in ((("netCDF4",), "netcdf4"), (("h5netcdf", "h5py"), "h5netcdf")):
         try:
             for module in modules:
                 __import__(module)
-        except ImportError:
+        except ModuleNotFoundError:
+            continue
+        except ImportError as error:    # installed, its compiled library not loaded
+            refused = refused or (module, " ".join(str(error).split()))
             continue
         return engine
+    if refused:
+        raise FluxpartError(_not_loaded(*refused))
     raise FluxpartError('writing NetCDF needs netCDF4, or h5netcdf together with h5py (recent '
                         'h5netcdf releases do not install h5py themselves); install the netcdf '
                         'extra: pip install "fluxpart[netcdf]" (or pip install h5py)')
+
+
+def _not_loaded(module: str, text: str) -> str:
+    """The line for a NetCDF library that is installed but whose compiled part the system
+    did not load.
+
+    Under a memory limit (``ulimit -v`` 450 and 550 MB, `export` of the grassland
+    example) the dynamic loader could not map h5py's HDF5 library ("failed to map
+    segment from shared object") and `export` said to install the netcdf extra, which
+    was installed. A module that is absent raises :class:`ModuleNotFoundError`, any other
+    :class:`ImportError` is a module found and not loaded (Python documentation, "The
+    import system" (m)); the loader's words name the likely cause.
+
+    References
+    ----------
+    glibc's dynamic loader, ``dlopen(3)``: "failed to map segment from shared object" where
+    ``mmap(2)`` is refused (ENOMEM under a memory limit, EPERM on a ``noexec`` mount) (m).
+    """
+    cause = ("the system refused it memory (a memory limit of this process: ulimit -v, a "
+             "container's or a batch job's; give the process more memory) or its file "
+             "system does not allow loading code (noexec)"
+             if "map" in text or "allocate memory" in text.lower()
+             else "reinstall it in this environment")
+    return f"writing NetCDF: {module} is installed but could not be loaded ({text}): {cause}"
 
 
 def _interval_minutes(index: pd.DatetimeIndex) -> int:

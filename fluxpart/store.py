@@ -48,7 +48,7 @@ import pyarrow.parquet as pq
 
 from .errors import InputFileError, OutputError, ResourceShortage
 
-__all__ = ["PANDAS_ATTRS_KEY", "atomic_write_bytes", "column_units", "file_mode", "file_sha256",
+__all__ = ["PANDAS_ATTRS_KEY", "arrow_table", "atomic_write_bytes", "column_units", "file_mode", "file_sha256",
            "folder_mode", "full_disk_remedy", "parquet_source", "read_table", "reader_attrs",
            "remove_stale", "set_mode", "shortage", "special_kind", "table_shape", "unreadable",
            "write_table"]
@@ -180,9 +180,10 @@ def shortage(path, error: Exception) -> ResourceShortage | None:
                                                       for part in _THREAD_REFUSED):
         return None
     what = "a thread" if "thread" in text else "memory"
+    detail = f" ({text})" if text else ""     # Python's own MemoryError has no text
     return ResourceShortage(
         f"the system refused {what} while reading {str(Path(path).name)!r} in "
-        f"{str(Path(path).parent)!r} ({text}): a memory limit of this process (ulimit -v, "
+        f"{str(Path(path).parent)!r}{detail}: a memory limit of this process (ulimit -v, "
         "a container's or a batch job's) or a limit on threads (ulimit -u); the file was "
         "not judged")
 
@@ -535,6 +536,70 @@ def parquet_source(path):
     return nullcontext(text)
 
 
+def arrow_table(path, columns=None) -> pa.Table:
+    """The Parquet file `path` (its `columns`, default all) decoded on the calling thread.
+
+    The one reader of a Parquet file's rows in fluxpart (:func:`read_table`, the network
+    tables and the same-records check of :mod:`fluxpart.batch`, a table rewritten by
+    another program in :mod:`fluxpart.verify`). Python reads the file's bytes and pyarrow
+    decodes them from memory with ``use_threads=False``: pyarrow's own reading of a path,
+    an open file or a memory map starts a thread of its I/O pool for the first file read
+    (up to 8 in all), a buffer none (measured, pyarrow 26.0). Under a memory limit
+    (``ulimit -v``) a thread the system refuses hung a read for good or ended the process
+    before Python could say why (faults32); a thread never started cannot be refused. A
+    refused allocation on this thread is a :class:`MemoryError` Python can name.
+
+    Parameters
+    ----------
+    path : path-like
+        The Parquet file (a name that is not UTF-8 is read as Python reads any name).
+    columns : list of str, optional
+        The columns to decode, in the file's order; default all.
+
+    Returns
+    -------
+    pyarrow.Table
+        The file's rows with its schema and key-value metadata.
+
+    Raises
+    ------
+    ResourceShortage
+        Where the system refused memory (or a thread) while reading the file.
+    InputFileError
+        Where the file cannot be read (permissions, an I/O error), is no readable
+        Parquet file (cut short, a byte changed) or no file (a folder, a named pipe, a
+        device: named without opening it, :func:`special_kind`).
+
+    Notes
+    -----
+    The whole file is held while decoding: its compressed size on top of the table
+    (a ten-year half-hourly result's largest table, 18 MB, adds ~4 % to the peak of
+    ``verify``; see DEVELOPERS.md, faults33).
+
+    References
+    ----------
+    Apache Arrow documentation, ``pyarrow.BufferReader``, ``pyarrow.parquet.ParquetFile``
+    and ``ParquetFile.read(use_threads=False)`` (m). pthread_create(3), EAGAIN
+    (Linux man-pages) (m).
+    """
+    kind = special_kind(path) or ("a folder" if os.path.isdir(path) else "")
+    if kind:            # a named pipe blocks the open for good, a device reads on and on
+        raise InputFileError(f"result table {str(path)!r} is {kind}, not a Parquet file: "
+                             "rerun to rewrite the folder")
+    try:
+        with open(path, "rb") as handle:
+            data = handle.read()
+    except MemoryError as error:
+        raise shortage(path, error) from None
+    except OSError as error:
+        raise shortage(path, error) or unreadable_table(path, error) from None
+    try:
+        with pq.ParquetFile(pa.BufferReader(data)) as opened:
+            return opened.read(columns=columns, use_threads=False)
+    except (pa.ArrowException, ValueError, OSError, MemoryError) as error:
+        raise shortage(path, error) or damaged_table(path, error) from None
+
+
 def read_table(path) -> pd.DataFrame:
     """Read a table written by :func:`write_table`, restoring its index.
 
@@ -551,21 +616,11 @@ def read_table(path) -> pd.DataFrame:
     path = Path(path)
     if not path.exists():
         raise InputFileError(f"result table {str(path)!r} does not exist")
-    try:
-        # one file: ParquetFile reads it without pyarrow's dataset layer (half the time of
-        # pq.read_table for the small tables of a result folder, no pyarrow.dataset import).
-        # On this thread (use_threads=False), and so the conversion below: a refused
-        # allocation (std::bad_alloc) in one of pyarrow's worker threads ends the process
-        # (std::terminate, exit 134, no error line: `verify` under ulimit -v 400, 475 and
-        # 525 MB), in the calling thread pyarrow raises it as MemoryError; a thread the
-        # system refuses cannot occur. The tables of a result folder are small, the time
-        # the same.
-        with parquet_source(path) as source, pq.ParquetFile(source) as file:
-            table = file.read(use_threads=False)
-    except OSError as error:            # no permission, an I/O error
-        raise shortage(path, error) or unreadable_table(path, error) from None
-    except (pa.ArrowException, ValueError, MemoryError) as error:   # cut short, not Parquet
-        raise shortage(path, error) or damaged_table(path, error) from None
+    # one file, on this thread, and so the conversion below (:func:`arrow_table`): a
+    # refused allocation (std::bad_alloc) in one of pyarrow's worker threads ends the
+    # process (std::terminate, exit 134, no error line: `verify` under ulimit -v 400, 475
+    # and 525 MB, faults31), in the calling thread pyarrow raises it as MemoryError
+    table = arrow_table(path)
     meta = table.schema.metadata or {}
     if _SCHEMA_KEY not in meta:
         raise InputFileError(f"{str(path)!r} is not a table written by fluxpart "

@@ -1310,15 +1310,20 @@ def _rewritten_elsewhere(path: Path, index=None):
     import pyarrow as pa
     import pyarrow.parquet as pq
 
-    from .store import _SCHEMA_KEY, parquet_source
+    from .store import _SCHEMA_KEY, arrow_table, parquet_source
 
     try:
         with parquet_source(path) as source:
             if _SCHEMA_KEY in (pq.read_schema(source).metadata or {}):
                 return None             # fluxpart's own, damaged otherwise: named as such
-        with parquet_source(path) as source:
-            frame = pd.read_parquet(source)
-    except (OSError, ValueError, ImportError, pa.ArrowException):
+        # as pandas.read_parquet reads it (its PANDAS_ATTRS into attrs), on this thread
+        # (store.arrow_table): pandas' reader starts pyarrow's threads (faults33)
+        table = arrow_table(path)
+        frame = table.to_pandas(use_threads=False)
+        copied = (table.schema.metadata or {}).get(b"PANDAS_ATTRS")
+        if copied is not None:
+            frame.attrs = json.loads(copied)
+    except (FluxpartError, OSError, ValueError, ImportError, pa.ArrowException):
         return None
     if isinstance(index, str) and index in frame.columns and isinstance(frame.index,
                                                                        pd.RangeIndex):
