@@ -1348,7 +1348,8 @@ _FLAG_REFUSE = 0.95
 
 
 def _flag_rejects_most(frame, share: float) -> str | None:
-    """The warning where a frame's ``nee_flag`` (non-zero = reject) rejects most records.
+    """The warning where a frame's ``nee_flag`` (non-zero = reject) rejects most records
+    with an NEE value (all records where the frame has no ``nee``).
 
     References
     ----------
@@ -1359,11 +1360,17 @@ def _flag_rejects_most(frame, share: float) -> str | None:
         return None
     values = np.asarray(frame["nee_flag"], dtype=float)
     judged = np.isfinite(values)
+    # judged over the records with an NEE value, as the reader's rule (review41): a flag
+    # written "bad" wherever NEE is missing (common practice) rejects nothing more
+    with_nee = "nee" in frame.columns
+    if with_nee:
+        judged &= np.isfinite(np.asarray(frame["nee"], dtype=float))
     rejected = judged & (values != 0.0)
     if judged.sum() < 48 or rejected.sum() <= share * judged.sum():
         return None
     held = ", ".join(f"{value:g}" for value in np.unique(values[judged])[:10])
-    return (f"column 'nee_flag': {int(rejected.sum())} of {int(judged.sum())} records "
+    records = "records with an NEE value" if with_nee else "records"
+    return (f"column 'nee_flag': {int(rejected.sum())} of {int(judged.sum())} {records} "
             f"({rejected.sum() / judged.sum():.1%}) are rejected, as process() keeps a record "
             f"only where nee_flag is 0 (or missing); the flags hold {held}: where 1 (or True) "
             "means a good record, pass (frame[\"nee_flag\"] == 0) instead")

@@ -89,3 +89,29 @@ def test_the_flag_is_named_only_beside_a_want_of_measured_nee():
         with pytest.raises(InsufficientDataError) as caught:
             refuse(None, [ustar, short], Config(), frame)
         assert "rejects 990 of the 1000 records" in str(caught.value)
+
+
+def test_a_frames_flag_is_judged_over_the_records_with_nee():
+    """Known-truth recovery on invented records (`demo.site_year`): a caller's frame whose
+    flag is written "bad" (2) wherever NEE is missing, as towers commonly write it, and 0
+    on every record with NEE. Before, the frame checks counted the records without NEE:
+    with 60 % of NEE missing the flag was warned as rejecting most records, and with 96 %
+    missing the frame was refused; the flag rejects none of the records it can reject.
+    A flag of the opposite meaning is still warned and refused (the 0.5 and 0.95 shares,
+    Falge et al. 2001 (m): towers keep about 65 % of their records)."""
+    from fluxpart import demo
+    from fluxpart.unit_checks import frame_messages, frame_refusal
+
+    frame, _ = demo.site_year(0)
+    rng = np.random.default_rng(3)
+    for missing_share, check in ((0.6, frame_messages), (0.96, frame_refusal)):
+        nee = frame["nee"].where(rng.random(len(frame)) >= missing_share)
+        flag = np.where(np.isfinite(nee), 0.0, 2.0)
+        written = frame.assign(nee=nee, nee_flag=flag)
+        found = check(written)
+        texts = found if isinstance(found, list) else [found or ""]
+        assert not any("'nee_flag'" in text for text in texts), texts
+        inverted = written.assign(nee_flag=np.where(np.isfinite(nee), 2.0, 0.0))
+        found = check(inverted)
+        texts = found if isinstance(found, list) else [found or ""]
+        assert any("records with an NEE value" in text for text in texts), texts
