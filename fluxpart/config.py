@@ -19,7 +19,7 @@ from typing import NamedTuple
 from ._validate import read_toml
 from .errors import ConfigError
 
-__all__ = ["Config", "UnknownSettingError", "setting_text", "suggest_key"]
+__all__ = ["Config", "UnknownSettingError", "keyword_checked", "setting_text", "suggest_key"]
 
 
 @dataclass(frozen=True)
@@ -642,28 +642,38 @@ class UnknownSettingError(ConfigError, TypeError):
     unexpected keyword argument is (so code catching either still does)."""
 
 
-def _keyword_checked(dataclass_init):
-    """Wrap the dataclass ``__init__`` so that an unknown keyword is named with a hint.
+def keyword_checked(cls, label: str) -> None:
+    """Wrap a dataclass's ``__init__`` so that an unknown keyword is named with a hint.
 
-    ``Config(ustar_methd="fixed")`` stopped with Python's "got an unexpected keyword
-    argument 'ustar_methd'", which ``Config.from_mapping`` (a site config's
-    ``[processing]``) answers with the setting meant (round mistakes37).
+    ``Config(ustar_methd="fixed")`` or ``Site(lat=47.1, ...)`` stopped with Python's "got
+    an unexpected keyword argument", which a site config's ``[processing]`` or ``[site]``
+    answers with the setting meant (round mistakes37; `Site` since 0.28.0).
+
+    Parameters
+    ----------
+    cls : type
+        A dataclass (:class:`Config`, :class:`fluxpart.site.Site`); its ``__init__`` is
+        replaced in place.
+    label : str
+        The name the message gives the call (``"Config"``, ``"Site"``).
     """
+    dataclass_init = cls.__init__
+
     def __init__(self, *args, **kwargs):
-        names = [f.name for f in fields(Config)]
+        names = [f.name for f in fields(cls)]
         for key in kwargs:
             if key not in names:
-                raise UnknownSettingError(f"Config({key}=...): unknown setting"
+                raise UnknownSettingError(f"{label}({key}=...): unknown setting"
                                           f"{_key_hint(key, names)}")
         dataclass_init(self, *args, **kwargs)
 
     __init__.__doc__ = dataclass_init.__doc__
     __init__.__signature__ = inspect.signature(dataclass_init)
     __init__.__wrapped__ = dataclass_init
-    return __init__
+    cls.__init__ = __init__
 
 
-Config.__init__ = _keyword_checked(Config.__init__)
+keyword_checked(Config, "Config")
 
 
 def _key_hint(key: str, names) -> str:

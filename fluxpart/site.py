@@ -118,3 +118,9 @@ def _check_utc_offset(offset: float) -> None:
         f"[site] utc_offset = {offset:g} is no time zone's offset: standard time is a whole "
         f"number of hours from UTC or one of {', '.join(f'{v:g}' for v in sorted(FRACTIONAL_UTC_OFFSETS))};"
         f" the nearest are {below:g} and {above:g}{hint}")
+
+
+# an unknown keyword (Site(lat=47.1, ...)) named with the setting meant, as Config's
+from .config import keyword_checked  # noqa: E402  (config does not import site)
+
+keyword_checked(Site, "Site")

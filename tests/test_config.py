@@ -468,3 +468,24 @@ def test_a_misspelt_keyword_of_config_is_named_with_the_setting_meant():
     # the valid keywords, positional use and dataclasses.replace are as before
     assert Config(3).seed == 3
     assert dataclasses.replace(Config(seed=1), seed=2) == Config(seed=2)
+
+
+def test_a_misspelt_keyword_of_site_is_named_with_the_setting_meant():
+    """``Site(name="x", lat=47.1, lon=8.6)`` stopped with Python's bare "unexpected
+    keyword argument 'lat'" (left alone by round mistakes37); it is now the same
+    UnknownSettingError as Config's, a ConfigError and a TypeError (Python reference,
+    "Calls" (m)), naming the setting meant."""
+    from fluxpart.config import UnknownSettingError
+    from fluxpart.site import Site
+
+    with pytest.raises(UnknownSettingError, match=r"Site\(lat=\.\.\.\).*'latitude'"):
+        Site(name="Quillmoor (fictional)", lat=49.3, lon=10.2)
+    with pytest.raises(TypeError, match=r"Site\(lon=\.\.\.\).*'longitude'"):
+        Site("Quillmoor (fictional)", 49.3, lon=10.2)
+    with pytest.raises(ConfigError, match="'utc_offset'"):
+        Site("Quillmoor (fictional)", 49.3, 10.2, offset=1.0)
+    # valid keywords, positional use, replace and the range checks are as before
+    site = Site("Quillmoor (fictional)", 49.3, 10.2, utc_offset=1.0)
+    assert dataclasses.replace(site, canopy="short").canopy == "short"
+    with pytest.raises(ConfigError, match="latitude"):
+        Site("Quillmoor (fictional)", 149.3, 10.2)
