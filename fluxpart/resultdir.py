@@ -463,7 +463,8 @@ def other_site_reason(directory, site_name) -> str | None:
     if recorded is None or site_name is None or recorded == site_name:
         return None
     return (f"holds the result of site {recorded!r}, not of {site_name!r} ([site] name), and "
-            "writing would replace it; choose another --out for this site, or delete that "
+            "writing would replace it; choose another output folder (--out; in Python the "
+            "folder given to Result.write) for this site, or delete that "
             "folder first if it is the same site renamed")
 
 
@@ -754,12 +755,14 @@ def run_log_record(directory: Path, provenance: dict) -> dict:
 def _refusal(directory: Path, reason: str) -> OutputError:
     """The error refusing to replace `directory`, its fix named once (another site's
     result names its own)."""
-    fix = "" if "choose another --out" in reason else "; choose another --out"
+    # the output folder is --out on the command line and Result.write's directory in
+    # Python (round mistakes37 found "--out" told to a Python caller)
+    fix = "" if "choose another" in reason else "; choose another output folder (--out)"
     if reason == _A_FILE:
         # a batch's site folder (``--out``/<site>) replaced by a file: another --out moves
         # every site; the file in the way is what to remove
         fix = ("; move or delete that file (fluxpart writes a result folder of that name), "
-               "or choose another --out")
+               "or choose another output folder (--out)")
     return OutputError(f"output folder {str(directory)!r} {reason}{fix}")
 
 
