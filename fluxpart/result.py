@@ -163,7 +163,8 @@ class Result:
         from .result_edits import changed_tables
         from .resultdir import DEFAULT_LOCK_TIMEOUT, write_folder
 
-        changed = changed_tables(getattr(self, "_as_computed", {}), self.tables())
+        kept = getattr(self, "_as_computed", None)      # made by __post_init__, __setstate__
+        changed = [] if kept is None else changed_tables(kept, self.tables())
         if changed:
             raise OutputError(
                 f"Result.write: table(s) changed after the run: {', '.join(changed)}; a "

@@ -14,6 +14,8 @@ from __future__ import annotations
 
 import pandas as pd
 
+from .store import _CARRIED
+
 __all__ = ["changed_tables", "kept_tables"]
 
 #: Whether a shallow copy of a DataFrame keeps its values when the original is changed
@@ -57,22 +59,36 @@ def changed_tables(kept: dict, tables: dict) -> list:
     Returns
     -------
     list of str
-        E.g. ``"annual (column 'nee' changed; column 'nee_gco2' added)"``; empty where
-        every table equals its kept copy (values, dtypes, labels and index).
+        E.g. ``"annual (column 'nee' changed; column 'nee_gco2' added)"``, or
+        ``"parameters_mine (table added)"``; empty where the same tables are there and
+        each equals its kept copy (values, dtypes, labels, index and its name, and the
+        ``attrs`` written into the file).
 
     References
     ----------
     pandas documentation, ``DataFrame.equals`` (NaN in the same place counts as equal) (m).
     """
-    found = []
+    # a table added to or removed from ``result.parameters`` (a dict, changeable in a
+    # frozen Result) was written, or left out, under the seal unnoticed (round review42)
+    found = [f"{name} (table added)" for name in tables if name not in kept]
+    found += [f"{name} (table removed)" for name in kept if name not in tables]
     for name, table in tables.items():
         before = kept.get(name)
         if before is None or table.equals(before) and table.columns.equals(before.columns) \
-                and table.index.equals(before.index):
+                and table.index.equals(before.index) and _same_labels(table, before) \
+                and not _changed_attrs(table, before):
             continue
-        parts = []
+        parts = [f"attrs {key!r} changed" for key in _changed_attrs(table, before)]
         added = [c for c in table.columns if c not in before.columns]
         removed = [c for c in before.columns if c not in table.columns]
+        if list(table.index.names) != list(before.index.names):
+            # Index.equals compares values only: a renamed index is written as a column
+            # of that name with no unit (round review42)
+            parts.append(f"index renamed {_names(before.index)} -> {_names(table.index)}")
+        if list(table.columns.names) != list(before.columns.names):
+            parts.append("column labels renamed")
+        if table.index.dtype != before.index.dtype and table.index.equals(before.index):
+            parts.append(f"index type {before.index.dtype} -> {table.index.dtype}")
         if not table.index.equals(before.index):
             parts.append(f"rows {len(before)} -> {len(table)}" if len(table) != len(before)
                          else "index changed")
@@ -84,3 +100,32 @@ def changed_tables(kept: dict, tables: dict) -> list:
         found.append(f"{name} ({'; '.join(parts[:4]) or 'changed'}"
                      f"{f'; {len(parts) - 4} more' if len(parts) > 4 else ''})")
     return found
+
+
+def _changed_attrs(table: pd.DataFrame, before: pd.DataFrame) -> list:
+    """The keys of ``attrs`` written into a table's file that differ from the kept copy's.
+
+    :func:`fluxpart.store.write_table` carries ``site``, ``interval_minutes`` and
+    ``time_convention`` from a frame's ``attrs`` into the file's metadata, which the
+    manifest then seals (``result.timeseries.attrs["interval_minutes"] = 60`` was written
+    as the record length of a half-hourly result, round review42); the other ``attrs``
+    (units, descriptions) are not written, the schema's are. ``DataFrame.copy`` copies
+    ``attrs`` deeply (pandas documentation, ``DataFrame.attrs`` (m)), so the kept copy holds
+    them as computed.
+    """
+    return [key for key in _CARRIED if table.attrs.get(key) != before.attrs.get(key)]
+
+
+def _same_labels(table: pd.DataFrame, before: pd.DataFrame) -> bool:
+    """Whether the names of the index and column axis and the index's dtype are as kept
+    (``DataFrame.equals`` and ``Index.equals`` compare values only, pandas
+    documentation (m): ``Index([2021]).equals(Index([2021.0]))`` is true)."""
+    return (list(table.index.names) == list(before.index.names)
+            and list(table.columns.names) == list(before.columns.names)
+            and table.index.dtype == before.index.dtype)
+
+
+def _names(index: pd.Index) -> str:
+    """The index's name(s) as a text: ``'year'``, or a list for several levels."""
+    names = list(index.names)
+    return repr(names[0]) if len(names) == 1 else repr(names)

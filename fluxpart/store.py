@@ -592,6 +592,16 @@ def arrow_table(path, columns=None) -> pa.Table:
     except MemoryError as error:
         raise shortage(path, error) from None
     except OSError as error:
+        if error.errno in (errno.ENOENT, errno.ELOOP):
+            # no file to make readable: gone since it was listed, a symbolic link to
+            # nothing or to itself (named "cannot be read ... make it readable" before
+            # round review42)
+            what = ("leads through a symbolic link back to itself"
+                    if error.errno == errno.ELOOP else
+                    "is a symbolic link to nothing" if os.path.islink(path)
+                    else "does not exist")
+            raise InputFileError(f"result table {str(path)!r} {what}: rerun to rewrite the "
+                                 "folder") from None
         raise shortage(path, error) or unreadable_table(path, error) from None
     try:
         with pq.ParquetFile(pa.BufferReader(data)) as opened:

@@ -71,3 +71,77 @@ def test_a_pickled_result_is_checked_after_loading(demo_result):
     back = pickle.loads(pickle.dumps(demo_result))
     assert "_as_computed" in back.__dict__
     assert changed_tables(back._as_computed, back.tables()) == []
+
+
+def test_a_renamed_index_or_retyped_index_is_a_change():
+    """Round review42: ``Index.equals`` and ``DataFrame.equals`` compare values only
+    (pandas documentation (m)), so a renamed index (``annual.index.name = "yr"``) passed
+    and was written as a column ``yr`` with no unit, sealed as fluxpart's. Known-truth
+    recovery on invented numbers: unchanged tables stay unchanged, each relabelling is
+    named."""
+    annual = pd.DataFrame({"nee": [-241.4, -198.2]},
+                          index=pd.Index([2021, 2022], name="year"))
+    kept = kept_tables({"annual": annual})
+    assert changed_tables(kept, {"annual": annual}) == []
+    annual.index.name = "yr"                              # in place, values unchanged
+    assert changed_tables(kept, {"annual": annual}) == [
+        "annual (index renamed 'year' -> 'yr')"]
+    annual.index.name = "year"
+    assert changed_tables(kept, {"annual": annual}) == []
+    annual.columns.name = "quantity"
+    assert changed_tables(kept, {"annual": annual}) == ["annual (column labels renamed)"]
+    annual.columns.name = None
+    floats = annual.set_axis(pd.Index([2021.0, 2022.0], name="year"))
+    assert changed_tables(kept, {"annual": floats}) == [
+        "annual (index type int64 -> float64)"]
+
+
+def test_a_renamed_index_is_not_written(demo_result, tmp_path):
+    """The same through Result.write (round review42): refused, nothing written."""
+    result = pickle.loads(pickle.dumps(demo_result))      # its own tables to change
+    result.write(tmp_path / "first")
+    result.write(tmp_path / "first")                      # written twice: no change
+    result.annual.index.name = "budget_year"
+    with pytest.raises(OutputError, match="index renamed 'year' -> 'budget_year'"):
+        result.write(tmp_path / "renamed")
+    assert not (tmp_path / "renamed").exists()
+
+
+def test_attrs_written_into_the_file_are_a_change(demo_result, tmp_path):
+    """Round review42: ``store.write_table`` writes a frame's ``attrs`` ``site``,
+    ``interval_minutes`` and ``time_convention`` into the file, sealed by the manifest;
+    changed in place they passed ``changed_tables`` (``DataFrame.equals`` ignores attrs,
+    pandas documentation (m)) and a half-hourly result was written as hourly. The units
+    in ``attrs`` are not written (the schema's are): changing them is no change.
+    Known-truth recovery on the invented Quillmoor grassland: the record length is 30 min
+    (``fluxpart.demo``)."""
+    result = pickle.loads(pickle.dumps(demo_result))
+    assert result.timeseries.attrs["interval_minutes"] == 30
+    result.annual.attrs["units"] = {"nee": "g CO2 m-2"}   # not written: no change
+    result.write(tmp_path / "units")
+    result.timeseries.attrs["interval_minutes"] = 60
+    with pytest.raises(OutputError, match=r"timeseries \(attrs 'interval_minutes' changed\)"):
+        result.write(tmp_path / "hourly")
+    assert not (tmp_path / "hourly").exists()
+    result.timeseries.attrs["interval_minutes"] = 30
+    result.write(tmp_path / "again")
+    assert (fluxpart.load(tmp_path / "again").timeseries.attrs["interval_minutes"] == 30)
+
+
+def test_a_parameter_table_added_or_removed_is_a_change(demo_result, tmp_path):
+    """Round review42: ``result.parameters`` is a dict, changeable in a frozen Result; a
+    table added there was written as ``parameters_<name>.parquet`` and sealed as
+    fluxpart's, one removed left out, both unnoticed. Known-truth recovery on the
+    invented Quillmoor grassland: the tables of the run as computed write unchanged."""
+    result = pickle.loads(pickle.dumps(demo_result))
+    result.parameters["my_fit"] = pd.DataFrame({"a": [1.0]})
+    with pytest.raises(OutputError, match=r"parameters_my_fit \(table added\)"):
+        result.write(tmp_path / "added")
+    del result.parameters["my_fit"]
+    daytime = result.parameters.pop("daytime")
+    with pytest.raises(OutputError, match=r"parameters_daytime \(table removed\)"):
+        result.write(tmp_path / "removed")
+    assert not (tmp_path / "added").exists() and not (tmp_path / "removed").exists()
+    result.parameters["daytime"] = daytime
+    result.write(tmp_path / "as_computed")
+    assert (tmp_path / "as_computed" / "parameters_daytime.parquet").is_file()

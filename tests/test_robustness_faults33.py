@@ -224,3 +224,25 @@ def test_a_system_call_refused_memory_is_one_line(tmp_path, monkeypatch, capsys)
     assert code == 2
     assert len(err) == 1 and err[0].startswith("error: ran out of memory")
     assert "ulimit -v" in err[0]
+
+
+@pytest.mark.skipif(not hasattr(os, "symlink"), reason="symbolic links are POSIX")
+def test_a_table_that_is_no_file_is_not_told_to_be_made_readable(tmp_path):
+    """Round review42: open(2) fails with ENOENT for a symbolic link to nothing and
+    ELOOP for a link leading back to itself (open(2), symlink(7), Linux man-pages (m));
+    ``arrow_table`` named both "cannot be read ... make it and its folder readable by
+    this user", a fix that cannot help. A link to a table reads the table. Invented
+    counts."""
+    frame = pd.DataFrame({"a": np.arange(4.0)})
+    store.write_table(frame, tmp_path / "real.parquet", units={"a": ("1", "a")}, name="t")
+    os.symlink("real.parquet", tmp_path / "link.parquet")
+    assert store.arrow_table(tmp_path / "link.parquet")["a"].to_pylist() == [0, 1, 2, 3]
+    os.symlink("nowhere.parquet", tmp_path / "dangling.parquet")
+    os.symlink("loop.parquet", tmp_path / "loop.parquet")
+    for name, what in (("dangling.parquet", "is a symbolic link to nothing"),
+                       ("loop.parquet", "leads through a symbolic link back to itself"),
+                       ("never.parquet", "does not exist")):
+        with pytest.raises(InputFileError) as caught:
+            store.arrow_table(tmp_path / name)
+        assert f"{name}' {what}: rerun" in str(caught.value)
+        assert "readable" not in str(caught.value)
