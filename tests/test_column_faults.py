@@ -495,8 +495,8 @@ def test_positive_day_values_removed_are_named_with_their_stretch():
     # example site, unnamed)
     nee, night, stamps = sign_record()
     text = censored_nee(np.where(~night & (nee > 0), np.nan, nee), night, stamps,
-                        columns={"nee": "Fc"})
-    assert text is not None and "'Fc'" in text and "by day" in text
+                        columns={"nee": "co2_turb"})
+    assert text is not None and "'co2_turb'" in text and "by day" in text
     assert "at night" not in text and "2021-01-01 .. 2021-12-31" in text
 
 
@@ -1015,8 +1015,8 @@ def test_storage_in_mg_co2_read_as_umol_is_named_with_its_factor(seed):
     sensor."""
     stamps, _, turbulent, storage = stored_below_sensor(seed=seed)
     message = storage_in_turbulent_flux(turbulent, storage * 44.01 / 1000.0, stamps,
-                                        columns={"nee": "Fc", "storage": "Sc"})
-    assert message is not None and "'Sc'" in message and "too small" in message
+                                        columns={"nee": "co2_turb", "storage": "co2_store"})
+    assert message is not None and "'co2_store'" in message and "too small" in message
     factor = float(re.search(r"about (\d+) times too small", message).group(1))
     assert 20 <= factor <= 25
     # the storage in its own unit, and a profile that holds half the store: quiet
@@ -1032,8 +1032,8 @@ def test_storage_given_as_the_store_or_its_running_sum_is_named_as_a_level():
     0. Known-truth recovery on the invented mass balance."""
     stamps, _, turbulent, storage = stored_below_sensor(seed=3)
     running = np.cumsum(storage + 0.05)
-    message = storage_in_turbulent_flux(turbulent, running, stamps, columns={"storage": "Sc"})
-    assert message is not None and "looks like a level" in message and "'Sc'" in message
+    message = storage_in_turbulent_flux(turbulent, running, stamps, columns={"storage": "co2_store"})
+    assert message is not None and "looks like a level" in message and "'co2_store'" in message
     store = 400.0 * 41.6 * 2.0 + np.cumsum(storage) * STEP * 60.0 / 2.0
     assert "looks like a level" in storage_in_turbulent_flux(turbulent, store, stamps)
     # the storage term itself, also with an offset of a tenth of its spread: quiet

@@ -47,13 +47,13 @@ def test_no_co2_flux_unit_has_no_factor(label):
 
 def test_a_note_only_where_the_label_converts_otherwise():
     read = "'µmol m-2 s-1' (no [input.units] nee: its default)"
-    note = unreadable_rate_note("nee", "Fc", "g CO2 m-2 d-1", "its name", 1.0, read)
+    note = unreadable_rate_note("nee", "co2_flux", "g CO2 m-2 d-1", "its name", 1.0, read)
     assert "3.8 times too large" in note and "0.262987" in note
-    small = unreadable_rate_note("nee", "Fc", "mmol m-2 s-1", "its name", 1.0, read)
+    small = unreadable_rate_note("nee", "co2_flux", "mmol m-2 s-1", "its name", 1.0, read)
     assert "1e+03 times too small" in small
-    assert unreadable_rate_note("nee", "Fc", "umol m-2 s-1", "its name", 1.0, read) is None
+    assert unreadable_rate_note("nee", "co2_flux", "umol m-2 s-1", "its name", 1.0, read) is None
     # mg CO2 m-2 s-1 declared (1000 / 44.01 µmol per unit) and labelled in mg per second
-    assert unreadable_rate_note("nee", "Fc", "mg CO2 m-2 s-1", "its name", 1e3 / CO2,
+    assert unreadable_rate_note("nee", "co2_flux", "mg CO2 m-2 s-1", "its name", 1e3 / CO2,
                                 read) is None
     assert unreadable_rate_note("tair", "T", "g CO2 m-2 d-1", "its name", 1.0, read) is None
 
@@ -124,7 +124,7 @@ def test_labels_with_a_count_a_carbon_of_co2_or_a_bracketed_species(label, expec
     word."""
     assert rate_factor(label) == pytest.approx(expected, rel=1e-12)
     read = "'µmol m-2 s-1' (no [input.units] nee: its default)"
-    note = unreadable_rate_note("nee", "Fc", label, "its name", 1.0, read)
+    note = unreadable_rate_note("nee", "co2_flux", label, "its name", 1.0, read)
     assert (note is None) == (expected == 1.0)
 
 
@@ -135,13 +135,13 @@ def test_a_mass_rate_without_its_species_is_named_with_both_factors(tmp_path):
     large) without a word. Now the label is named with the factors of CO2 and of C
     (molar masses 44.01 and 12.011 g mol-1, IUPAC (m)); read as either, it is quiet."""
     read = "'µmol m-2 s-1' (no [input.units] nee: its default)"
-    note = unreadable_rate_note("nee", "Fc", "mg/m2/s", "its name", 1.0, read)
+    note = unreadable_rate_note("nee", "co2_flux", "mg/m2/s", "its name", 1.0, read)
     assert note is not None
     assert f"{1e3 / CO2:.6g} for CO2" in note and f"{1e3 / CARBON:.6g} for C" in note
     assert "22.7 times too small" in note and "83.3 times too small" in note
-    assert unreadable_rate_note("nee", "Fc", "mg m-2 s-1", "its name", 1e3 / CO2,
+    assert unreadable_rate_note("nee", "co2_flux", "mg m-2 s-1", "its name", 1e3 / CO2,
                                 read) is None
-    assert unreadable_rate_note("nee", "Fc", "W m-2", "its name", 1.0, read) is None
+    assert unreadable_rate_note("nee", "co2_flux", "W m-2", "its name", 1.0, read) is None
     # through the reader: NEE in g CO2 m-2 d-1 under "g/m2/d" (mg CO2 m-2 s-1 values are
     # refused as too small by the magnitude check before any label is read)
     _, report = _example(tmp_path, units_cell="g/m2/d", factor=1.0 / (1e6 / CO2 / DAY))

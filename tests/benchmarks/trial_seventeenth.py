@@ -686,19 +686,19 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
             "wc_kin": fmt(raw.wc_kin, 5, "-9999"), "P_kPa": fmt(raw.P_kPa, 3, "-9999"),
             "Rg": fmt(data.rg, 1, "-9999"), "Tair_C": fmt(data.tair, 2, "-9999"),
             "RH": fmt(data.rh, 1, "-9999"), "ust": fmt(data.ustar, 3, "-9999"),
-            "Ts": fmt(data.tsoil, 2, "-9999")})
+            "soil_t": fmt(data.tsoil, 2, "-9999")})
         raw_out.to_csv(folder / "huaylla_raw.csv", index=False)
         # the user reads the raw file back and converts the flux, as they would
         back = pd.read_csv(folder / "huaylla_raw.csv", na_values=[-9999])
         flux = user_converts_kinematic(back)
         conv = back.drop(columns=["wc_kin", "P_kPa"]).copy()
-        conv.insert(3, "Fc_umol", np.round(flux, 4))
+        conv.insert(3, "co2_umol", np.round(flux, 4))
         conv.to_csv(folder / "huaylla_converted.csv", index=False, na_rep="-9999")
         text = toml(site, 'path = "huaylla_converted.csv"\n'
                     'time_column = ["Year", "DOY", "HHMM"]\ntime_format = "%Y %j %H%M"\n'
                     'time_marks = "start"\nmissing = [-9999]\n',
-                    'nee = "Fc_umol"\nrg = "Rg"\ntair = "Tair_C"\nrh = "RH"\nustar = "ust"\n'
-                    'tsoil = "Ts"\n', processing=processing)
+                    'nee = "co2_umol"\nrg = "Rg"\ntair = "Tair_C"\nrh = "RH"\nustar = "ust"\n'
+                    'tsoil = "soil_t"\n', processing=processing)
     elif k == "O":  # tab, decimal comma, day-first end stamps, PPFD above the nets
         end = idx + step
         frame = pd.DataFrame({
@@ -717,14 +717,14 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
     elif k == "C":  # hourly, month names, end stamps, kW m-2 and deg F
         end = idx + step
         frame = pd.DataFrame({
-            "Time": end.strftime("%d-%b-%Y %H:%M"), "Fc": fmt(data.nee, 3, "--"),
+            "Time": end.strftime("%d-%b-%Y %H:%M"), "CarbonFlux": fmt(data.nee, 3, "--"),
             "SolarRad_kW": fmt(data.rg / 1000, 4, "--"),
             "AirTemp_F": fmt(data.tair * 9 / 5 + 32, 2, "--"), "RelHum": fmt(data.rh, 1, "--"),
             "Ustar": fmt(data.ustar, 3, "--"), "SoilTemp_F": fmt(data.tsoil * 9 / 5 + 32, 2, "--")})
         frame.to_csv(folder / "khandala_hourly.csv", index=False)
         text = toml(site, 'path = "khandala_hourly.csv"\ntime_column = "Time"\n'
                     'time_format = "%d-%b-%Y %H:%M"\ntime_marks = "end"\nmissing = ["--"]\n',
-                    'nee = "Fc"\nrg = "SolarRad_kW"\ntair = "AirTemp_F"\nrh = "RelHum"\n'
+                    'nee = "CarbonFlux"\nrg = "SolarRad_kW"\ntair = "AirTemp_F"\nrh = "RelHum"\n'
                     'ustar = "Ustar"\ntsoil = "SoilTemp_F"\n',
                     'rg = "kW m-2"\ntair = "degF"\ntsoil = "degF"\n', processing)
     else:  # S: gzip, civil time with southern daylight saving, storage column, day-first
@@ -732,17 +732,17 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
         civil = utc.tz_localize("UTC").tz_convert(ZoneInfo("Australia/Hobart"))
         frame = pd.DataFrame({
             "LocalTime": civil.strftime("%d/%m/%Y %H:%M"),
-            "Fc": fmt(data.nee - data.storage, 3, "-9999"), "Sc": fmt(data.storage, 3, "-9999"),
-            "Fsd": fmt(data.rg, 1, "-9999"), "Ta": fmt(data.tair, 2, "-9999"),
-            "RH": fmt(data.rh, 1, "-9999"), "ustar": fmt(data.ustar, 3, "-9999"),
-            "Ts": fmt(data.tsoil, 2, "-9999")})
+            "co2_turb": fmt(data.nee - data.storage, 3, "-9999"), "co2_store": fmt(data.storage, 3, "-9999"),
+            "sw_in": fmt(data.rg, 1, "-9999"), "air_c": fmt(data.tair, 2, "-9999"),
+            "rh_pct": fmt(data.rh, 1, "-9999"), "ustar": fmt(data.ustar, 3, "-9999"),
+            "soil_c": fmt(data.tsoil, 2, "-9999")})
         with gzip.open(folder / "weldriver.csv.gz", "wt") as handle:
             frame.to_csv(handle, index=False)
         text = toml(site, 'path = "weldriver.csv.gz"\ntime_column = "LocalTime"\n'
                     'time_format = "%d/%m/%Y %H:%M"\ntime_marks = "start"\n'
                     'time_zone = "Australia/Hobart"\nmissing = [-9999]\n',
-                    'nee = "Fc"\nstorage = "Sc"\nrg = "Fsd"\ntair = "Ta"\nrh = "RH"\n'
-                    'ustar = "ustar"\ntsoil = "Ts"\n', processing=processing)
+                    'nee = "co2_turb"\nstorage = "co2_store"\nrg = "sw_in"\ntair = "air_c"\n'
+                    'rh = "rh_pct"\nustar = "ustar"\ntsoil = "soil_c"\n', processing=processing)
     name = f"site_{k}.toml"
     (folder / name).write_text(text)
     return name
