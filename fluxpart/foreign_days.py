@@ -26,6 +26,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from .unit_checks import undeclared_code
+
 __all__ = ["DAY_SHARE", "MIN_DAYS", "MIN_PER_DAY", "foreign_days"]
 
 #: Share of a day's present values beyond the range that names the day (a tenth: single
@@ -63,8 +65,8 @@ def foreign_days(values, starts, minimum: float, maximum: float, *, column: str,
         it that enter as NEE; None where fewer than :data:`MIN_DAYS` calendar days hold
         :data:`DAY_SHARE` of their present values (and :data:`MIN_PER_DAY` or more) beyond
         the range. A value repeated exactly that makes up half or more of the values
-        beyond the range (3 times or more) is taken as an undeclared missing-data code:
-        its records count as missing.
+        beyond the range (3 times or more) is taken as an undeclared missing-data code
+        (:func:`fluxpart.unit_checks.undeclared_code`): its records count as missing.
 
     References
     ----------
@@ -79,9 +81,9 @@ def foreign_days(values, starts, minimum: float, maximum: float, *, column: str,
     # a quantity: the reader names it as a code where it makes up half of the values
     # beyond the range and occurs 3 times or more (io._undeclared_code); its records are
     # missing, not days of another quantity (review40)
-    codes, counts = np.unique(values[outside], return_counts=True)
-    if counts.size and counts.max() >= 3 and counts.max() >= 0.5 * outside.sum():
-        coded = values == codes[int(np.argmax(counts))]
+    found = undeclared_code(values[outside])
+    if found is not None:
+        coded = values == found[0]
         present, outside = present & ~coded, outside & ~coded
     if outside.sum() < MIN_DAYS * MIN_PER_DAY:
         return None

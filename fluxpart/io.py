@@ -104,6 +104,7 @@ from .unit_checks import (
     missing_code_hint,
     mixup_messages,
     most_repeated,
+    undeclared_code,
 )
 from .unit_labels import relabelled_files, relabelled_months_message
 from .variables import (
@@ -3171,11 +3172,10 @@ def _undeclared_code(raw, canonical, variable, missing, column=None) -> str:
         return ""
     with np.errstate(invalid="ignore"):
         outside = (canonical < variable.minimum) | (canonical > variable.maximum)
-    code, count = most_repeated(np.asarray(raw, dtype=float)[outside])
-    if count < 3 or count < 0.5 * outside.sum():
+    found = undeclared_code(np.asarray(raw, dtype=float)[outside])
+    if found is None:
         return ""
-    return missing_code_hint(code, count, missing,
-                             f" in the {column} column" if column else "")
+    return missing_code_hint(*found, missing, f" in the {column} column" if column else "")
 
 
 def _flag_key(column: str) -> str:

@@ -157,6 +157,20 @@ def most_repeated(values) -> tuple[float, int]:
     return float(codes[most]), int(counts[most])
 
 
+def undeclared_code(outside_values) -> tuple[float, int] | None:
+    """The value that makes up half or more of a column's values beyond its plausible
+    range, 3 times or more, and its count: an undeclared missing-data code; else None.
+
+    Our rule: a logger's code repeats one number exactly, while a unit mix-up or a
+    faulty sensor spreads over many values (used by the reader's hint,
+    ``io._undeclared_code``, and by :func:`fluxpart.foreign_days.foreign_days`).
+    """
+    code, count = most_repeated(outside_values)
+    if count < 3 or count < 0.5 * len(outside_values):
+        return None
+    return code, count
+
+
 def missing_code_hint(code: float, count: int, missing, place: str = "") -> str:
     """The hint that a repeated implausible value is an undeclared missing-data code.
 
