@@ -116,20 +116,22 @@ def boundary_gap_message(starts, sources, rg, potential, interval_minutes: float
         return ""
     starts = pd.DatetimeIndex(starts)
     sources = np.asarray(sources, dtype=object)
+    rg, potential = np.asarray(rg, dtype=float), np.asarray(potential, dtype=float)
     step = pd.Timedelta(minutes=float(interval_minutes))
+    reach = pd.Timedelta(days=JOIN_DAYS)
     cuts = np.flatnonzero(sources[1:] != sources[:-1]) + 1
     for cut in cuts:
         if starts[cut] - starts[cut - 1] != 2 * step:
             continue
-        before = (starts >= starts[cut - 1] - pd.Timedelta(days=JOIN_DAYS)) \
-            & (np.arange(len(starts)) < cut) & (sources == sources[cut - 1])
-        after = (starts <= starts[cut] + pd.Timedelta(days=JOIN_DAYS)) \
-            & (np.arange(len(starts)) >= cut) & (sources == sources[cut])
-        lag_a, days_a = radiation_lag_minutes(starts[before], np.asarray(rg)[before],
-                                              np.asarray(potential)[before],
+        # the records within JOIN_DAYS of the join on either side, of each side's file:
+        # positions from the sorted stamps, not a mask over the whole record per join
+        before = np.arange(starts.searchsorted(starts[cut - 1] - reach), cut)
+        before = before[sources[before] == sources[cut - 1]]
+        after = np.arange(cut, starts.searchsorted(starts[cut] + reach, side="right"))
+        after = after[sources[after] == sources[cut]]
+        lag_a, days_a = radiation_lag_minutes(starts[before], rg[before], potential[before],
                                               interval_minutes)
-        lag_b, days_b = radiation_lag_minutes(starts[after], np.asarray(rg)[after],
-                                              np.asarray(potential)[after],
+        lag_b, days_b = radiation_lag_minutes(starts[after], rg[after], potential[after],
                                               interval_minutes)
         if min(days_a, days_b) < MIN_DAYS:
             continue
