@@ -1351,8 +1351,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         if text.iloc[first] == " ".join(time_columns):
             hint = ("; the header line repeats there (files joined end to end?): remove the "
                     "repeated header lines, or list the files in [input] path instead")
-        elif _written_where_it_changes(text, failed, time_columns):
-            hint = "; " + _written_where_it_changes(text, failed, time_columns)
+        elif (found := _written_where_it_changes(text, failed, time_columns)):
+            hint = "; " + found
         elif first == 0 and not any(ch.isdigit() for ch in text.iloc[0][:4]):
             # the first rows without a stamp: units or processing lines (a logger writes
             # up to three under its header); the count to skip is all of them
@@ -1365,8 +1365,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             # a database's or a statistics program's word for no value in the time column
             hint = ("; a record without a date and time (an empty stamp or a missing "
                     "code): give it its stamp or delete that line in a copy of the file")
-        elif _summary_lines(text, failed):
-            hint = "; " + _summary_lines(text, failed)
+        elif (found := _summary_lines(text, failed)):
+            hint = "; " + found
         elif _NO_DATE.fullmatch(text.iloc[first]) and not failed.all():
             # a record whose stamp is empty or a bare number ("-9999"): a row written
             # while the logger had no clock, or a missing code in the time column
@@ -1385,8 +1385,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = ("; the stamps are wrapped in single quotes ('...'), which are no CSV "
                     "quotes (those are double quotes, \"...\"): remove the single quotes "
                     "in a copy of the file, or write double quotes")
-        elif _impossible_date(text.iloc[first], time_format):
-            hint = "; " + _impossible_date(text.iloc[first], time_format)
+        elif (found := _impossible_date(text.iloc[first], time_format)):
+            hint = "; " + found
         elif (not isinstance(time_columns, str) and len(time_columns) > 1
               and "%H:%M" in time_format
               and text[failed].str.strip().str.fullmatch(r".*\s\d{1,4}").all()):
@@ -1403,8 +1403,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = (f"; {_foreign_month(text.iloc[first])!r} is no English month "
                     "abbreviation, the only names %b reads: write the months as numbers "
                     "(%m) in a copy of the file")
-        elif _swapped_day_month(text[failed], time_format, text[~failed]):
-            hint = "; " + _swapped_day_month(text[failed], time_format, text[~failed])
+        elif (found := _swapped_day_month(text[failed], time_format, text[~failed])):
+            hint = "; " + found
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format \
                 and _offsets_of_a_clock(text[failed], _OFFSET_AT_END_GROUP):
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
@@ -1419,29 +1419,29 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "EST): write the "
                     "stamps with a numeric offset (+02:00, %z), or without the abbreviation "
                     "and with [input] time_zone = \"Area/City\"")
-        elif _numeric_clock(text):
-            hint = "; " + _numeric_clock(text)
-        elif _serial_date_column(text, time_columns):
-            hint = "; " + _serial_date_column(text, time_columns)
-        elif _seconds_of_day(text, time_format):
-            hint = "; " + _seconds_of_day(text, time_format)
-        elif _finer_stamp(text.iloc[first], time_format):
-            hint = "; " + _finer_stamp(text.iloc[first], time_format)
-        elif _fraction_hint(text[failed], time_format):
-            hint = "; " + _fraction_hint(text[failed], time_format)
-        elif _spreadsheet_cell_time(text[failed], time_columns, time_format):
-            hint = "; " + _spreadsheet_cell_time(text[failed], time_columns, time_format)
-        elif _other_format(text.iloc[first], time_format):
-            hint = "; " + _other_format(text.iloc[first], time_format)
-        elif _text_around_stamps(text, failed, time_format):
-            hint = "; " + _text_around_stamps(text, failed, time_format)
-        elif _marked_stamps(text, failed, time_format):
-            hint = "; " + _marked_stamps(text, failed, time_format)
+        elif (found := _numeric_clock(text)):
+            hint = "; " + found
+        elif (found := _serial_date_column(text, time_columns)):
+            hint = "; " + found
+        elif (found := _seconds_of_day(text, time_format)):
+            hint = "; " + found
+        elif (found := _finer_stamp(text.iloc[first], time_format)):
+            hint = "; " + found
+        elif (found := _fraction_hint(text[failed], time_format)):
+            hint = "; " + found
+        elif (found := _spreadsheet_cell_time(text[failed], time_columns, time_format)):
+            hint = "; " + found
+        elif (found := _other_format(text.iloc[first], time_format)):
+            hint = "; " + found
+        elif (found := _text_around_stamps(text, failed, time_format)):
+            hint = "; " + found
+        elif (found := _marked_stamps(text, failed, time_format)):
+            hint = "; " + found
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
-        elif failed.all() and _common_format(text, time_format):
-            hint = "; " + _common_format(text, time_format)
+        elif failed.all() and (found := _common_format(text, time_format)):
+            hint = "; " + found
         hint = _mixed_forms(hint, text, failed, failed | is_24 | date_only, time_format,
                             source, lines)
         raise TimestampError(
