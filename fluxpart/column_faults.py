@@ -65,7 +65,8 @@ __all__ = ["GAPLESS_DAYS", "SOIL_RANGE_RATIO", "censored_nee", "delayed_tair",
            "delayed_tair_in_a_year",
            "dew_point_as_tair", "flag_as_measurement", "gapless_nee", "interpolated_nee",
            "months_rising_with_light", "nee_day_shift", "nee_lag", "storage_in_turbulent_flux",
-           "same_temperature_columns", "shaded_rg", "swapped_temperatures", "tair_lag", "values_written_twice",
+           "same_temperature_columns", "shaded_rg", "slope_reads_turbulent", "storage_slope",
+           "swapped_temperatures", "tair_lag", "values_written_twice",
            "vapour_pressure_as_vpd", "zero_coded_temperature"]
 
 #: Ratio of the soil column's to the air column's median daily temperature range above
@@ -2123,6 +2124,72 @@ def storage_in_turbulent_flux(turbulent, storage, stamps, columns=None) -> str |
     Wooldridge, J. M. (2010). Econometric Analysis of Cross Section and Panel Data, 2nd
     ed. MIT Press, ch. 5 (instrumental variables; measurement error in a regressor) (m).
     """
+    fitted = storage_slope(turbulent, storage, stamps)
+    if fitted is None:
+        return None
+    slope, spread = fitted
+    stamps = pd.DatetimeIndex(stamps)
+    storage = np.asarray(storage, dtype=float)
+    names = columns or {}
+    flux, term = names.get("nee", "nee"), names.get("storage", "storage")
+    level = _storage_level_ratio(storage, stamps)
+    if level > _STORAGE_LEVEL_RATIO:
+        return (f"the storage column ({term!r}) looks like a level, not a change: its daily "
+                f"means lie {level:.0f} times its spread within the day away from 0, while "
+                "the storage term (the change of the CO2 stored below the sensor) sums to "
+                "about 0 over a day as the store fills at night and empties in the morning; "
+                "a running sum of the storage term, or the store itself (concentration times "
+                "height), reads like this: map the storage flux (its change per second, "
+                "µmol m-2 s-1)")
+    if np.isfinite(spread) and slope + _STORAGE_MIN_Z * spread < _STORAGE_SLOPE_TOO_SMALL:
+        return (f"the storage column ({term!r}) looks about {-slope:.0f} times too small for "
+                f"the turbulent flux in {flux!r}: a turbulent flux falls as the storage term "
+                "rises from one night to the next by the same amount (slope about -1 on "
+                f"their hour-of-day anomalies), here by {-slope:.1f} ± {spread:.1f} times it, "
+                "so most of the store is missing from NEE; check the storage column's unit: "
+                "mg CO2 m-2 s-1 read as µmol m-2 s-1 is 22.7 times too small (declare "
+                "storage = \"mg CO2 m-2 s-1\" under [input.units])")
+    if not np.isfinite(spread) or slope - _STORAGE_MIN_Z * spread <= _STORAGE_SLOPE_MIDWAY:
+        return None
+    evidence = ("a turbulent flux falls as the storage term rises from one night to the "
+                "next (slope about -1 on their hour-of-day anomalies)")
+    if slope - _STORAGE_MIN_Z * spread > -_STORAGE_SLOPE_MIDWAY:
+        return (f"the storage column ({term!r}) looks like it has the opposite sign: "
+                f"{evidence}, while {flux!r} rises with it (slope {slope:+.2f} ± "
+                f"{spread:.2f}), so adding it takes the store away twice; the storage term "
+                "is positive while CO2 accumulates below the sensor (check its sign "
+                "convention)")
+    return (f"the column mapped as nee ({flux!r}) looks like it already holds the "
+            f"storage term in {term!r}: {evidence}, this one does not (slope "
+            f"{slope:+.2f} ± {spread:.2f}), so adding the storage column counts the store "
+            "twice; if the column is NEE (turbulent flux + storage), remove the storage "
+            "mapping")
+
+
+def storage_slope(turbulent, storage, stamps) -> tuple[float, float] | None:
+    """The slope of a flux's anomalies on the storage term's, and its standard error.
+
+    Parameters
+    ----------
+    turbulent, storage, stamps
+        As for :func:`storage_in_turbulent_flux`.
+
+    Returns
+    -------
+    tuple of float or None
+        The instrumental-variable slope [1] (about -1 for a turbulent flux, about 0 for a
+        flux that already holds the storage term) and its standard error over blocks of
+        ``_STORAGE_BLOCK_DAYS`` days; None where the lengths differ, fewer than
+        ``_STORAGE_MIN_BLOCKS`` blocks hold both columns or the storage anomalies carry no
+        weight (the Notes of :func:`storage_in_turbulent_flux` give the method).
+
+    References
+    ----------
+    Finnigan, J. (2006). The storage term in eddy flux calculations. Agricultural and
+    Forest Meteorology 136, 108-113.
+    Wooldridge, J. M. (2010). Econometric Analysis of Cross Section and Panel Data, 2nd
+    ed. MIT Press, ch. 5 (instrumental variables) (m).
+    """
     turbulent = np.asarray(turbulent, dtype=float)
     storage = np.asarray(storage, dtype=float)
     stamps = pd.DatetimeIndex(stamps)
@@ -2163,40 +2230,34 @@ def storage_in_turbulent_flux(turbulent, storage, stamps, columns=None) -> str |
     count = len(products)
     departures = (products["ts"].to_numpy() - slope * products["ss"].to_numpy()) / total
     spread = float(np.sqrt(count / (count - 1) * np.sum(departures**2)))
-    names = columns or {}
-    flux, term = names.get("nee", "nee"), names.get("storage", "storage")
-    level = _storage_level_ratio(storage, stamps)
-    if level > _STORAGE_LEVEL_RATIO:
-        return (f"the storage column ({term!r}) looks like a level, not a change: its daily "
-                f"means lie {level:.0f} times its spread within the day away from 0, while "
-                "the storage term (the change of the CO2 stored below the sensor) sums to "
-                "about 0 over a day as the store fills at night and empties in the morning; "
-                "a running sum of the storage term, or the store itself (concentration times "
-                "height), reads like this: map the storage flux (its change per second, "
-                "µmol m-2 s-1)")
-    if np.isfinite(spread) and slope + _STORAGE_MIN_Z * spread < _STORAGE_SLOPE_TOO_SMALL:
-        return (f"the storage column ({term!r}) looks about {-slope:.0f} times too small for "
-                f"the turbulent flux in {flux!r}: a turbulent flux falls as the storage term "
-                "rises from one night to the next by the same amount (slope about -1 on "
-                f"their hour-of-day anomalies), here by {-slope:.1f} ± {spread:.1f} times it, "
-                "so most of the store is missing from NEE; check the storage column's unit: "
-                "mg CO2 m-2 s-1 read as µmol m-2 s-1 is 22.7 times too small (declare "
-                "storage = \"mg CO2 m-2 s-1\" under [input.units])")
-    if not np.isfinite(spread) or slope - _STORAGE_MIN_Z * spread <= _STORAGE_SLOPE_MIDWAY:
-        return None
-    evidence = ("a turbulent flux falls as the storage term rises from one night to the "
-                "next (slope about -1 on their hour-of-day anomalies)")
-    if slope - _STORAGE_MIN_Z * spread > -_STORAGE_SLOPE_MIDWAY:
-        return (f"the storage column ({term!r}) looks like it has the opposite sign: "
-                f"{evidence}, while {flux!r} rises with it (slope {slope:+.2f} ± "
-                f"{spread:.2f}), so adding it takes the store away twice; the storage term "
-                "is positive while CO2 accumulates below the sensor (check its sign "
-                "convention)")
-    return (f"the column mapped as nee ({flux!r}) looks like it already holds the "
-            f"storage term in {term!r}: {evidence}, this one does not (slope "
-            f"{slope:+.2f} ± {spread:.2f}), so adding the storage column counts the store "
-            "twice; if the column is NEE (turbulent flux + storage), remove the storage "
-            "mapping")
+    return slope, spread
+
+
+def slope_reads_turbulent(turbulent, storage, stamps) -> bool:
+    """Whether the slope of :func:`storage_slope` resolves `turbulent` as a turbulent flux.
+
+    Parameters
+    ----------
+    turbulent, storage, stamps
+        As for :func:`storage_in_turbulent_flux`.
+
+    Returns
+    -------
+    bool
+        True where the slope stands ``_STORAGE_MIN_Z`` standard errors below the midway
+        ``_STORAGE_SLOPE_MIDWAY`` (a turbulent flux falling with the storage term); False
+        where it is not resolved or reads otherwise.
+
+    References
+    ----------
+    Finnigan, J. (2006). The storage term in eddy flux calculations. Agricultural and
+    Forest Meteorology 136, 108-113.
+    """
+    fitted = storage_slope(turbulent, storage, stamps)
+    if fitted is None or not np.isfinite(fitted[1]):
+        return False
+    slope, spread = fitted
+    return slope + _STORAGE_MIN_Z * spread < _STORAGE_SLOPE_MIDWAY
 
 
 #: Lowest potential radiation of the records the shading check compares [W m-2]; our

@@ -1010,6 +1010,15 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             counted_twice = oversized_storage(storage, starts, interval_minutes,
                                               getattr(site, "canopy", None),
                                               mapping) or counted_twice
+        if counted_twice is None:
+            # a column labelled NEE holds storage by definition (mistakes38): named where
+            # the values did not resolve it as a turbulent flux
+            from .column_faults import slope_reads_turbulent
+            from .storage_labels import nee_label_beside_storage
+
+            labelled = nee_label_beside_storage(mapping["nee"], mapping["storage"])
+            if labelled and not slope_reads_turbulent(turbulent, storage, starts):
+                counted_twice = labelled
         if counted_twice:
             warnings.append(f"storage: {counted_twice}")
         if storage_missing:
