@@ -2089,8 +2089,9 @@ def storage_in_turbulent_flux(turbulent, storage, stamps, columns=None) -> str |
     Returns
     -------
     str or None
-        The warning text, one of (checked in this order): the storage column is a
-        level, not a change (its daily means lie more than ``_STORAGE_LEVEL_RATIO``
+        The warning text, one of (checked in this order): the storage column follows
+        the flux record by record, a flux mapped as storage (:func:`flux_as_storage`;
+        the reader refuses it); the storage column is a level, not a change (its daily means lie more than ``_STORAGE_LEVEL_RATIO``
         times its within-day spread from 0); it is too small for the turbulent flux
         (slope below ``_STORAGE_SLOPE_TOO_SMALL`` = -5 by three standard errors, e.g.
         mg CO2 read as µmol); it has the opposite sign (slope above +0.5 by three
