@@ -25,9 +25,11 @@ __all__ = ["NEE_WORDS", "TURBULENT_WORDS", "label_words", "nee_label_beside_stor
 #: Words of a column name that label net ecosystem exchange or production, both of which
 #: hold the storage term by definition (the trade's terms).
 NEE_WORDS = frozenset({"nee", "nep"})
-#: Words of a column name that say the column is the turbulent part alone; such a name
-#: is not read as NEE (our choice: "nee_turb" states which part it holds).
-TURBULENT_WORDS = frozenset({"turb", "turbulent", "eddy", "covariance", "cov"})
+#: Words of a column name that say the column is the turbulent part alone, or NEE without
+#: its storage term; such a name is not read as NEE (our choice: "nee_turb" and
+#: "NEE_no_storage" state which part they hold, "nee_uncorrected" may).
+TURBULENT_WORDS = frozenset({"turb", "turbulent", "eddy", "covariance", "cov", "no", "without",
+                             "wo", "excl", "excluding", "nostorage", "uncorrected"})
 
 
 def label_words(name) -> set[str]:

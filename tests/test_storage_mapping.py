@@ -30,7 +30,8 @@ EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
 @pytest.mark.parametrize("name, named", [
     ("NEE", True), ("nee_umol", True), ("NEP_30min", True), ("co2 NEE [umol m-2 s-1]", True),
     ("co2_turb", False), ("NEE_turb", False), ("nee eddy covariance", False),
-    ("needle_temp", False), ("co2_flux", False)])
+    ("needle_temp", False), ("co2_flux", False), ("NEE_no_storage", False),
+    ("nee (without storage)", False)])
 def test_only_a_name_with_the_word_nee_or_nep_reads_as_nee(name, named):
     """A word of the name, not a part of one ("needle"), and not where the name says the
     turbulent part alone."""
