@@ -999,18 +999,36 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                 "missing codes, or remove the storage mapping to use the turbulent flux alone")
         converted["nee"] = turbulent + storage
         source_of["nee"] = f"{mapping['nee']} + {mapping['storage']} (storage)"
-        from .column_faults import storage_in_turbulent_flux  # only where storage is mapped
+        from .column_faults import (  # only where storage is mapped
+            FLUX_COPY_WORDS,
+            storage_in_turbulent_flux,
+        )
 
         counted_twice = storage_in_turbulent_flux(turbulent, storage, starts, columns=mapping)
         # a storage column in another unit, too large for a short canopy (mistakes34):
         # named before the slope's causes, after a level (a running sum swings too)
         from .storage_size import LEVEL_WORDS, oversized_storage
 
-        if not (counted_twice and LEVEL_WORDS in counted_twice):
+        if not (counted_twice and (LEVEL_WORDS in counted_twice
+                                   or FLUX_COPY_WORDS in counted_twice)):
             counted_twice = oversized_storage(storage, starts, interval_minutes,
                                               getattr(site, "canopy", None),
                                               mapping) or counted_twice
-        if counted_twice:
+        if counted_twice is None:
+            # a column labelled NEE holds storage by definition (mistakes38): named where
+            # the values did not resolve it as a turbulent flux
+            from .column_faults import slope_reads_turbulent
+            from .storage_labels import nee_label_beside_storage
+
+            labelled = nee_label_beside_storage(mapping["nee"], mapping["storage"])
+            if labelled and not slope_reads_turbulent(turbulent, storage, starts):
+                counted_twice = labelled
+        if counted_twice and FLUX_COPY_WORDS in counted_twice:
+            # a flux mapped as storage: NEE counted twice cannot be right (mistakes38)
+            accepted.append(_refuse_or_warn(
+                "storage", f"storage: {counted_twice} (to keep it, list storage in [input] "
+                "accept_units)", accept_units, warnings, preflight))
+        elif counted_twice:
             warnings.append(f"storage: {counted_twice}")
         if storage_missing:
             warnings.append(f"storage: {storage_missing} record(s) have a turbulent flux in "
