@@ -377,7 +377,7 @@ def test_a_day_the_record_begins_or_ends_within_says_how_much_of_it_the_sums_cov
         assert "share_present_daily" in \
             dataset[f"{name}_daily_sum"].attrs["ancillary_variables"].split()
         assert dataset[f"{name}_daily_mean"].attrs["ancillary_variables"] == \
-            "share_present_daily"
+            f"{name}_daily_mean_sigma share_present_daily"
         assert dataset[f"{name}_daily_sum"].attrs["cell_methods"] == \
             "day: sum (comment: over the records present)"
     # the first day's sum is the half-hours present, integrated (1800 s each, kg -> g)
