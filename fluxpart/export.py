@@ -39,10 +39,10 @@ Layout (one file, four time axes):
   ``respiration_temperature*`` and ``respiration_form_share_constant_q10``, and as one
   sentence in the ``comment`` of each GPP and Reco variable.
 
-Standard names are given where the CF standard name table has one that fits (those
-recalled from memory are marked "(m)" in :data:`STANDARD_NAMES`); NEE, Reco and u*
-have none we could confirm, so they carry a ``long_name`` only, and the downward
-net flux ``nep`` = -NEE carries the CF name of the net land carbon flux.
+Standard names are given where the CF standard name table has one that fits (checked
+against version 93 of the table: :data:`STANDARD_NAMES`); NEE and Reco have none, so
+they carry a ``long_name`` only, and the downward net flux ``nep`` = -NEE carries the
+CF name of the net land carbon flux.
 
 Needs the ``netcdf`` extra (xarray, h5netcdf and h5py; netCDF4 is used instead when it
 is installed).
@@ -82,18 +82,25 @@ from .units import KG_CARBON_PER_UMOL
 __all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf",
            "written_by_fluxpart"]
 
-#: CF standard names used, per exported variable. Each was recalled from the CF
-#: standard name table (m), except the GPP name, which the CF table and DESIGN.md cite.
+#: CF standard names used, per exported variable. Recalled from the CF standard name
+#: table (m) when first written; each found, with canonical units the exported unit
+#: converts to, in the CF standard name table version 93 (the copy shipped with the IOOS
+#: compliance checker 6.1.0, read in round modeller25), which has no name for total
+#: ecosystem respiration (only plant and heterotrophic respiration apart) nor for a net
+#: upward land CO2 flux: NEE and Reco carry a ``long_name`` only.
 STANDARD_NAMES = {
     "gpp": "gross_primary_productivity_of_biomass_expressed_as_carbon",
-    # (m) downward = uptake by the land: -NEE
+    # downward = uptake by the land: -NEE
     "nep": ("surface_net_downward_mass_flux_of_carbon_dioxide_expressed_as_carbon_due_to_all_"
             "land_processes_excluding_anthropogenic_land_use_change"),
-    "rg": "surface_downwelling_shortwave_flux_in_air",      # (m)
-    "tair": "air_temperature",                              # (m)
-    "tsoil": "soil_temperature",                            # (m)
-    "vpd": "water_vapor_saturation_deficit_in_air",         # (m)
-    "rh": "relative_humidity",                              # (m)
+    "rg": "surface_downwelling_shortwave_flux_in_air",
+    "tair": "air_temperature",
+    "tsoil": "soil_temperature",
+    "vpd": "water_vapor_saturation_deficit_in_air",
+    "rh": "relative_humidity",
+    # the tower's u*: "a reference wind velocity derived from the relationship between air
+    # density and downward stress", near the surface (the table's description)
+    "ustar": "magnitude_of_surface_friction_velocity_in_air",
     "time": "time",
     "lat": "latitude",
     "lon": "longitude",
@@ -350,14 +357,14 @@ def to_xarray(result):
         grams = daily[name].to_numpy(dtype=float)
         text = _FLUXES[name][1]
         mean = {"long_name": f"daily mean of {text}", "units": "kg m-2 s-1",
-                "cell_methods": "day: mean (comment: over the records present)",
+                "cell_methods": _cell_method("day", "mean", interval),
                 **modelled.get(name, {})}
         if name.startswith("gpp"):
             mean["standard_name"] = STANDARD_NAMES["gpp"]
         # a day the record begins or ends within sums only its records present: say so
         # where the method is stated (CF 1.10 §7.3) and link how much of the day that is
         total = {"long_name": f"daily sum of {text}; grams of carbon", "units": "g m-2",
-                 "cell_methods": "day: sum (comment: over the records present)",
+                 "cell_methods": _cell_method("day", "sum", interval),
                  **modelled.get(name, {})}
         variables[f"{name}_daily_mean"] = ("day", grams * 1e-3 / seconds, mean)
         variables[f"{name}_daily_sum"] = ("day", grams, total)
@@ -473,7 +480,8 @@ def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: 
     """Add the sums of one budget table (``monthly`` or ``annual``) to `variables`.
 
     Each flux of :data:`_FLUXES` gets ``<flux>_<period>_sum`` [g m-2, carbon] with
-    ``cell_methods = "<dim>: sum (comment: over the records present)"``, its mean
+    ``cell_methods = "<dim>: sum (interval: <record length> min comment: over the records
+    present)"`` (:func:`_cell_method`), its mean
     ``<flux>_<period>_mean`` [kg m-2 s-1] over the seconds of the records present, the
     1-sigma ``<flux>_<period>_sum_sigma`` and ``<flux>_<period>_mean_sigma``
     (:func:`_sigma_variables`) and, where the table states them (the annual
@@ -527,7 +535,7 @@ def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: 
     variables[f"{dim}_bounds"] = ((dim, "nv"), np.stack([start_utc, end_utc], axis=1))
     seconds, present = _coverage(table, interval,
                                  (end_utc - start_utc).astype("timedelta64[s]").astype(float))
-    method = f"{dim}: sum (comment: over the records present)"
+    method = _cell_method(dim, "sum", interval)
     described = table.attrs.get("descriptions") or {}
     shares = (f"share_measured_{period}" if "share_measured" in table.columns else None,
               None if present is None else f"share_present_{period}")
@@ -536,7 +544,7 @@ def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: 
             continue
         grams = table[name].to_numpy(dtype=float)
         mean = {"long_name": f"{period} mean of {text}", "units": "kg m-2 s-1",
-                "cell_methods": f"{dim}: mean (comment: over the records present)",
+                "cell_methods": _cell_method(dim, "mean", interval),
                 **modelled.get(name, {})}
         total = {"long_name": f"{period} sum of {text}; grams of carbon", "units": "g m-2",
                  "cell_methods": method, **modelled.get(name, {})}
@@ -582,6 +590,38 @@ def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: 
                           "spans two calendar years' thresholds)", "units": "m s-1"})
     return (dim, middle, {"standard_name": "time", "long_name": f"middle of the {text_of_cell}"
                           ", UTC", "bounds": f"{dim}_bounds"})
+
+
+def _cell_method(dim: str, method: str, interval: int) -> str:
+    """The ``cell_methods`` of a period's sum or mean of the records present.
+
+    CF-1.10 section 7.3.2: ``interval:`` gives the spacing of the original values the
+    method was applied to (here the records, `interval` minutes apart); section 7.3.3:
+    free text follows as ``comment:`` after the standardized information (a text alone
+    in the parentheses goes without the keyword). Before round modeller25 the text
+    stood alone after ``comment:``, which the IOOS compliance checker 6.1.0 (CF 1.10,
+    strict) flagged on every period variable.
+
+    Parameters
+    ----------
+    dim : str
+        The dimension (``"day"``, ``"month"``, ``"year"``).
+    method : str
+        ``"sum"`` or ``"mean"``.
+    interval : int
+        Record length [min].
+
+    Returns
+    -------
+    str
+        E.g. ``"day: sum (interval: 30 min comment: over the records present)"``.
+
+    References
+    ----------
+    Eaton, B. et al. (2022). CF Conventions 1.10, sections 7.3.2 (recording the spacing
+    of the original data) and 7.3.3 (comments in the cell_methods attribute).
+    """
+    return f"{dim}: {method} (interval: {int(interval)} min comment: over the records present)"
 
 
 def _modelled_comment(comment: str) -> dict:
