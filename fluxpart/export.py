@@ -351,6 +351,8 @@ def to_xarray(result):
     variables["day_bounds"] = (("day", "nv"), day_bounds)
     seconds, present = _coverage(daily, interval, np.full(len(daily), 86400.0))
     described_daily = daily.attrs.get("descriptions") or {}
+    shares = ("share_measured_daily" if "share_measured" in daily.columns else None,
+              None if present is None else "share_present_daily")
     for name in _FLUXES:
         if name not in daily.columns:
             continue
@@ -375,9 +377,8 @@ def to_xarray(result):
                                    daily[sigma].to_numpy(dtype=float), seconds,
                                    str(described_daily.get(sigma) or ""))
                   if sigma in daily.columns else {})
-        _link(total, spread.get("sum"), "share_measured_daily" if "share_measured" in
-              daily.columns else None, None if present is None else "share_present_daily")
-        _link(mean, spread.get("mean"), None if present is None else "share_present_daily")
+        _link(total, spread.get("sum"), *shares)
+        _link(mean, spread.get("mean"), shares[1])
     if "share_measured" in daily.columns:
         variables["share_measured_daily"] = ("day", daily["share_measured"].to_numpy(dtype=float),
                                              {"long_name": "share of the day's records with "
@@ -514,7 +515,8 @@ def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: 
     References
     ----------
     Eaton, B. et al. (2022). CF Conventions 1.10, sections 3.4 (ancillary data), 7.1
-    (cell boundaries), 7.3 (cell methods; free text as ``(comment: ...)``).
+    (cell boundaries), 7.3 (cell methods; the records' spacing as ``interval:``, free
+    text after it as ``comment:``).
     """
     period, text_of_cell = _PERIOD_TEXT[dim]
     modelled = modelled or {}
