@@ -18,7 +18,8 @@ Layout (one file, four time axes):
   ``gpp_nighttime`` (Reco - NEE) ``nee_fill_quality`` and ``nee_random_error``;
 - ``day`` (one per local standard day): the same fluxes as daily means [kg m-2 s-1]
   and as daily sums [g m-2, carbon] (``cell_methods = "day: sum"``), with their 1-sigma
-  where the run estimated it;
+  where the run estimated it, that of the sum [g m-2] and that of the mean
+  [kg m-2 s-1], each with a ``comment`` saying what it covers (:func:`_sigma_variables`);
 - ``month`` (one per calendar month of local standard time) and ``year`` (one per budget
   year, bounded by the annual table's ``period_start`` and ``period_end``): the sums
   ``<flux>_monthly_sum`` / ``<flux>_annual_sum`` [g m-2, carbon], the means
@@ -31,12 +32,17 @@ Layout (one file, four time axes):
   are the cell midpoints, in UTC (the site's local standard time minus its
   ``utc_offset``, which is also a global attribute);
 - scalar coordinates ``lat``, ``lon`` and ``station_name`` (``featureType =
-  "timeSeries"``) and the site, the record length and the caution as global attributes.
+  "timeSeries"``) and the site, the record length and the caution as global attributes;
+- the respiration choices the partitioned series rest on (the temperature, its delay,
+  how it was chosen, the constant-Q10 form's weight;
+  :func:`fluxpart.respiration_facts.respiration_facts`) as global attributes
+  ``respiration_temperature*`` and ``respiration_form_share_constant_q10``, and as one
+  sentence in the ``comment`` of each GPP and Reco variable.
 
-Standard names are given where the CF standard name table has one that fits (those
-recalled from memory are marked "(m)" in :data:`STANDARD_NAMES`); NEE, Reco and u*
-have none we could confirm, so they carry a ``long_name`` only, and the downward
-net flux ``nep`` = -NEE carries the CF name of the net land carbon flux.
+Standard names are given where the CF standard name table has one that fits (checked
+against version 93 of the table: :data:`STANDARD_NAMES`); NEE and Reco have none, so
+they carry a ``long_name`` only, and the downward net flux ``nep`` = -NEE carries the
+CF name of the net land carbon flux.
 
 Needs the ``netcdf`` extra (xarray, h5netcdf and h5py; netCDF4 is used instead when it
 is installed).
@@ -62,6 +68,7 @@ import pandas as pd
 
 from .errors import FluxpartError, InputFileError, OutputError
 from .manifest import recorded_paths
+from .respiration_facts import respiration_comment, respiration_facts
 from .store import (
     file_mode,
     full_disk_remedy,
@@ -75,18 +82,25 @@ from .units import KG_CARBON_PER_UMOL
 __all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf",
            "written_by_fluxpart"]
 
-#: CF standard names used, per exported variable. Each was recalled from the CF
-#: standard name table (m), except the GPP name, which the CF table and DESIGN.md cite.
+#: CF standard names used, per exported variable. Recalled from the CF standard name
+#: table (m) when first written; each found, with canonical units the exported unit
+#: converts to, in the CF standard name table version 93 (the copy shipped with the IOOS
+#: compliance checker 6.1.0, read in round modeller25), which has no name for total
+#: ecosystem respiration (only plant and heterotrophic respiration apart) nor for a net
+#: upward land CO2 flux: NEE and Reco carry a ``long_name`` only.
 STANDARD_NAMES = {
     "gpp": "gross_primary_productivity_of_biomass_expressed_as_carbon",
-    # (m) downward = uptake by the land: -NEE
+    # downward = uptake by the land: -NEE
     "nep": ("surface_net_downward_mass_flux_of_carbon_dioxide_expressed_as_carbon_due_to_all_"
             "land_processes_excluding_anthropogenic_land_use_change"),
-    "rg": "surface_downwelling_shortwave_flux_in_air",      # (m)
-    "tair": "air_temperature",                              # (m)
-    "tsoil": "soil_temperature",                            # (m)
-    "vpd": "water_vapor_saturation_deficit_in_air",         # (m)
-    "rh": "relative_humidity",                              # (m)
+    "rg": "surface_downwelling_shortwave_flux_in_air",
+    "tair": "air_temperature",
+    "tsoil": "soil_temperature",
+    "vpd": "water_vapor_saturation_deficit_in_air",
+    "rh": "relative_humidity",
+    # the tower's u*: "a reference wind velocity derived from the relationship between air
+    # density and downward stress", near the surface (the table's description)
+    "ustar": "magnitude_of_surface_friction_velocity_in_air",
     "time": "time",
     "lat": "latitude",
     "lon": "longitude",
@@ -293,9 +307,13 @@ def to_xarray(result):
              "these do not add in quadrature to a day's error: use the daily "
              "*_daily_sum_sigma"})
         ancillary.append("nee_random_error")
+    # which temperature and respiration form the partitioned series rest on, which only
+    # manifest.json recorded (round modeller25)
+    facts = respiration_facts(result.provenance)
+    modelled = _modelled_comment(respiration_comment(facts))
     for name, (column, long_name) in _FLUXES.items():
         values = series[column].to_numpy(dtype=float) * KG_CARBON_PER_UMOL
-        attrs = {"long_name": long_name, **mean_attrs}
+        attrs = {"long_name": long_name, **mean_attrs, **modelled.get(name, {})}
         if name.startswith("gpp"):
             attrs["standard_name"] = STANDARD_NAMES["gpp"]
         if name == "nee" and ancillary:
@@ -332,36 +350,35 @@ def to_xarray(result):
     day, day_bounds = _bounds(pd.DatetimeIndex(daily.index), pd.Timedelta(days=1), offset)
     variables["day_bounds"] = (("day", "nv"), day_bounds)
     seconds, present = _coverage(daily, interval, np.full(len(daily), 86400.0))
+    described_daily = daily.attrs.get("descriptions") or {}
+    shares = ("share_measured_daily" if "share_measured" in daily.columns else None,
+              None if present is None else "share_present_daily")
     for name in _FLUXES:
         if name not in daily.columns:
             continue
         grams = daily[name].to_numpy(dtype=float)
         text = _FLUXES[name][1]
         mean = {"long_name": f"daily mean of {text}", "units": "kg m-2 s-1",
-                "cell_methods": "day: mean (comment: over the records present)"}
-        if present is not None:
-            mean["ancillary_variables"] = "share_present_daily"
+                "cell_methods": _cell_method("day", "mean", interval),
+                **modelled.get(name, {})}
         if name.startswith("gpp"):
             mean["standard_name"] = STANDARD_NAMES["gpp"]
-        variables[f"{name}_daily_mean"] = ("day", grams * 1e-3 / seconds, mean)
         # a day the record begins or ends within sums only its records present: say so
         # where the method is stated (CF 1.10 §7.3) and link how much of the day that is
         total = {"long_name": f"daily sum of {text}; grams of carbon", "units": "g m-2",
-                 "cell_methods": "day: sum (comment: over the records present)"}
+                 "cell_methods": _cell_method("day", "sum", interval),
+                 **modelled.get(name, {})}
+        variables[f"{name}_daily_mean"] = ("day", grams * 1e-3 / seconds, mean)
         variables[f"{name}_daily_sum"] = ("day", grams, total)
         sigma = f"{name}_sigma"
-        # the sum's uncertainty and coverage travel with it (CF 1.10 §3.4 ancillary data)
-        ancillary = [f"{name}_daily_sum_sigma"] if sigma in daily.columns else []
-        if "share_measured" in daily.columns:
-            ancillary.append("share_measured_daily")
-        if present is not None:
-            ancillary.append("share_present_daily")
-        if ancillary:
-            total["ancillary_variables"] = " ".join(ancillary)
-        if sigma in daily.columns:
-            variables[f"{name}_daily_sum_sigma"] = ("day", daily[sigma].to_numpy(dtype=float), {
-                "long_name": f"one standard deviation of the daily sum of {name}; grams of carbon",
-                "units": "g m-2"})
+        # the uncertainty of the sum and of the mean (in the mean's unit) and the coverage
+        # travel with each (CF 1.10 §3.4 ancillary data)
+        spread = (_sigma_variables(variables, "day", "daily", name, mean,
+                                   daily[sigma].to_numpy(dtype=float), seconds,
+                                   str(described_daily.get(sigma) or ""))
+                  if sigma in daily.columns else {})
+        _link(total, spread.get("sum"), *shares)
+        _link(mean, spread.get("mean"), shares[1])
     if "share_measured" in daily.columns:
         variables["share_measured_daily"] = ("day", daily["share_measured"].to_numpy(dtype=float),
                                              {"long_name": "share of the day's records with "
@@ -373,8 +390,10 @@ def to_xarray(result):
                          "or ends within, whose daily sums and means cover only the records "
                          "present", "units": "1"})
 
-    month_coord = _period_variables(variables, result.monthly, "month", interval, offset)
-    year_coord = _period_variables(variables, result.annual, "year", interval, offset)
+    month_coord = _period_variables(variables, result.monthly, "month", interval, offset,
+                                    modelled)
+    year_coord = _period_variables(variables, result.annual, "year", interval, offset,
+                                   modelled)
 
     coords = {
         "time": ("time", time, {"standard_name": "time", "long_name": "middle of the averaging "
@@ -427,6 +446,7 @@ def to_xarray(result):
                            "(UTC + site_utc_offset_hours)",
         "sign_convention": "nee, reco: positive = release to the atmosphere; gpp positive = "
                            "uptake; nep = -nee",
+        **facts,
         "comment": _CAUTION,
     }
     return dataset
@@ -457,17 +477,19 @@ def _coverage(table, interval, full_seconds) -> tuple:
 
 
 def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: int,
-                      offset: pd.Timedelta):
+                      offset: pd.Timedelta, modelled: dict | None = None):
     """Add the sums of one budget table (``monthly`` or ``annual``) to `variables`.
 
     Each flux of :data:`_FLUXES` gets ``<flux>_<period>_sum`` [g m-2, carbon] with
-    ``cell_methods = "<dim>: sum (comment: over the records present)"``, its mean
+    ``cell_methods = "<dim>: sum (interval: <record length> min comment: over the records
+    present)"`` (:func:`_cell_method`), its mean
     ``<flux>_<period>_mean`` [kg m-2 s-1] over the seconds of the records present, the
-    1-sigma ``<flux>_<period>_sum_sigma`` and, where the table states them (the annual
+    1-sigma ``<flux>_<period>_sum_sigma`` and ``<flux>_<period>_mean_sigma``
+    (:func:`_sigma_variables`) and, where the table states them (the annual
     budget), the ends of the 95 % interval ``<flux>_<period>_sum_ci95_low`` /
-    ``_high``, linked as ``ancillary_variables`` with the coverage shares
-    ``share_measured_<period>`` and ``share_present_<period>``. The annual table adds
-    ``ustar_threshold_annual`` [m s-1].
+    ``_high`` (their ``comment`` the table's description: what they cover), linked as
+    ``ancillary_variables`` with the coverage shares ``share_measured_<period>`` and
+    ``share_present_<period>``. The annual table adds ``ustar_threshold_annual`` [m s-1].
 
     Parameters
     ----------
@@ -482,6 +504,8 @@ def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: 
         Record length [min].
     offset : pandas.Timedelta
         Local standard time minus UTC.
+    modelled : dict, optional
+        Attributes per flux name added to its sum and mean (:func:`_modelled_comment`).
 
     Returns
     -------
@@ -491,9 +515,11 @@ def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: 
     References
     ----------
     Eaton, B. et al. (2022). CF Conventions 1.10, sections 3.4 (ancillary data), 7.1
-    (cell boundaries), 7.3 (cell methods; free text as ``(comment: ...)``).
+    (cell boundaries), 7.3 (cell methods; the records' spacing as ``interval:``, free
+    text after it as ``comment:``).
     """
     period, text_of_cell = _PERIOD_TEXT[dim]
+    modelled = modelled or {}
     if dim == "year" and {"period_start", "period_end"} <= set(table.columns):
         starts = pd.DatetimeIndex(table["period_start"])
         ends = pd.DatetimeIndex(table["period_end"])
@@ -511,45 +537,44 @@ def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: 
     variables[f"{dim}_bounds"] = ((dim, "nv"), np.stack([start_utc, end_utc], axis=1))
     seconds, present = _coverage(table, interval,
                                  (end_utc - start_utc).astype("timedelta64[s]").astype(float))
-    method = f"{dim}: sum (comment: over the records present)"
+    method = _cell_method(dim, "sum", interval)
+    described = table.attrs.get("descriptions") or {}
+    shares = (f"share_measured_{period}" if "share_measured" in table.columns else None,
+              None if present is None else f"share_present_{period}")
     for name, (_, text) in _FLUXES.items():
         if name not in table.columns:
             continue
         grams = table[name].to_numpy(dtype=float)
         mean = {"long_name": f"{period} mean of {text}", "units": "kg m-2 s-1",
-                "cell_methods": f"{dim}: mean (comment: over the records present)"}
+                "cell_methods": _cell_method(dim, "mean", interval),
+                **modelled.get(name, {})}
         total = {"long_name": f"{period} sum of {text}; grams of carbon", "units": "g m-2",
-                 "cell_methods": method}
+                 "cell_methods": method, **modelled.get(name, {})}
         if name.startswith("gpp"):           # the mean is the flux; the sum [g m-2] is not
             mean["standard_name"] = STANDARD_NAMES["gpp"]
-        ancillary = []
+        variables[f"{name}_{period}_mean"] = ((dim,), grams * 1e-3 / seconds, mean)
+        variables[f"{name}_{period}_sum"] = ((dim,), grams, total)
         sigma = f"{name}_sigma" if f"{name}_sigma" in table.columns else \
             f"{name}_uncertainty_total"
-        if sigma in table.columns:
-            key = f"{name}_{period}_sum_sigma"
-            variables[key] = ((dim,), table[sigma].to_numpy(dtype=float), {
-                "long_name": f"one standard deviation of the {period} sum of {name}; grams "
-                             "of carbon", "units": "g m-2"})
-            ancillary.append(key)
+        spread = (_sigma_variables(variables, dim, period, name, mean,
+                                   table[sigma].to_numpy(dtype=float), seconds,
+                                   str(described.get(sigma) or ""))
+                  if sigma in table.columns else {})
+        interval_ends = []
         for end, word in (("low", "lower"), ("high", "upper")):
             column = f"{name}_ci95_{end}"
             if column in table.columns:
                 key = f"{name}_{period}_sum_ci95_{end}"
-                variables[key] = ((dim,), table[column].to_numpy(dtype=float), {
-                    "long_name": f"{word} end of the stated 95 % interval of the {period} "
-                                 f"sum of {name} (the budget table's {column}); grams of "
-                                 "carbon",
-                    "units": "g m-2"})
-                ancillary.append(key)
-        if "share_measured" in table.columns:
-            ancillary.append(f"share_measured_{period}")
-        if present is not None:
-            ancillary.append(f"share_present_{period}")
-            mean["ancillary_variables"] = f"share_present_{period}"
-        if ancillary:
-            total["ancillary_variables"] = " ".join(ancillary)
-        variables[f"{name}_{period}_mean"] = ((dim,), grams * 1e-3 / seconds, mean)
-        variables[f"{name}_{period}_sum"] = ((dim,), grams, total)
+                attrs = {"long_name": f"{word} end of the stated 95 % interval of the {period} "
+                                      f"sum of {name} (the budget table's {column}); grams of "
+                                      "carbon",
+                         "units": "g m-2"}
+                if described.get(column):    # what the interval covers and leaves out
+                    attrs["comment"] = str(described[column])
+                variables[key] = ((dim,), table[column].to_numpy(dtype=float), attrs)
+                interval_ends.append(key)
+        _link(total, spread.get("sum"), *interval_ends, *shares)
+        _link(mean, spread.get("mean"), shares[1])
     if "share_measured" in table.columns:
         variables[f"share_measured_{period}"] = (
             (dim,), table["share_measured"].to_numpy(dtype=float),
@@ -567,6 +592,111 @@ def _period_variables(variables: dict, table: pd.DataFrame, dim: str, interval: 
                           "spans two calendar years' thresholds)", "units": "m s-1"})
     return (dim, middle, {"standard_name": "time", "long_name": f"middle of the {text_of_cell}"
                           ", UTC", "bounds": f"{dim}_bounds"})
+
+
+def _cell_method(dim: str, method: str, interval: int) -> str:
+    """The ``cell_methods`` of a period's sum or mean of the records present.
+
+    CF-1.10 section 7.3.2: ``interval:`` gives the spacing of the original values the
+    method was applied to (here the records, `interval` minutes apart); section 7.3.3:
+    free text follows as ``comment:`` after the standardized information (a text alone
+    in the parentheses goes without the keyword). Before round modeller25 the text
+    stood alone after ``comment:``, which the IOOS compliance checker 6.1.0 (CF 1.10,
+    strict) flagged on every period variable.
+
+    Parameters
+    ----------
+    dim : str
+        The dimension (``"day"``, ``"month"``, ``"year"``).
+    method : str
+        ``"sum"`` or ``"mean"``.
+    interval : int
+        Record length [min].
+
+    Returns
+    -------
+    str
+        E.g. ``"day: sum (interval: 30 min comment: over the records present)"``.
+
+    References
+    ----------
+    Eaton, B. et al. (2022). CF Conventions 1.10, sections 7.3.2 (recording the spacing
+    of the original data) and 7.3.3 (comments in the cell_methods attribute).
+    """
+    return f"{dim}: {method} (interval: {int(interval)} min comment: over the records present)"
+
+
+def _modelled_comment(comment: str) -> dict:
+    """Flux name -> attributes saying which respiration choices the flux rests on.
+
+    `comment` is :func:`fluxpart.respiration_facts.respiration_comment` of the run; NEE
+    rests on none of them and gets none (an empty `comment`: none for any).
+    """
+    if not comment:
+        return {}
+    return {name: {"comment": comment} for name in _FLUXES if name != "nee"}
+
+
+def _link(attrs: dict, *names) -> None:
+    """Set ``ancillary_variables`` of `attrs` to the `names` given (None skipped)."""
+    linked = [name for name in names if name]
+    if linked:
+        attrs["ancillary_variables"] = " ".join(linked)
+
+
+def _sigma_variables(variables: dict, dim: str, period: str, name: str, mean: dict,
+                     sigma, seconds, description: str) -> dict:
+    """Add the 1 sigma of a period's sum [g m-2] and of its mean [kg m-2 s-1].
+
+    The mean is the sum over the seconds of the records present, so its standard
+    deviation is the sum's over the same seconds (x 1e-3 kg g-1). A modeller comparing a
+    model's monthly mean flux gets the uncertainty in the mean's unit; before round
+    modeller25 only the sum's was written, and neither said what it covers, which the
+    table's column description does (it becomes the ``comment``).
+
+    Parameters
+    ----------
+    variables : dict
+        Name -> (dims, values, attrs); changed in place.
+    dim : str
+        The dimension (``"day"``, ``"month"``, ``"year"``).
+    period : str
+        ``"daily"``, ``"monthly"`` or ``"annual"``: the middle of the variable names.
+    name : str
+        The flux (a key of :data:`_FLUXES`).
+    mean : dict
+        Attributes of the flux's mean; its ``standard_name``, where it has one, is given
+        to the mean's sigma with the CF modifier ``standard_error``.
+    sigma : numpy.ndarray
+        1 sigma of the period's sum [g m-2, carbon].
+    seconds : numpy.ndarray
+        Seconds of the records present in each period [s].
+    description : str
+        The budget table's description of the sigma column ("" for none).
+
+    Returns
+    -------
+    dict
+        ``{"sum": <name of the sum's sigma>, "mean": <name of the mean's sigma>}``.
+
+    References
+    ----------
+    Eaton, B. et al. (2022). CF Conventions 1.10, section 3.3 and appendix C (standard
+    name modifier ``standard_error``: same units as the quantity), section 3.4
+    (ancillary data).
+    """
+    keys = {"sum": f"{name}_{period}_sum_sigma", "mean": f"{name}_{period}_mean_sigma"}
+    covers = {"comment": description} if description else {}
+    variables[keys["sum"]] = ((dim,), sigma, {
+        "long_name": f"one standard deviation of the {period} sum of {name}; grams of carbon",
+        "units": "g m-2", **covers})
+    of_mean = {"long_name": f"one standard deviation of the {period} mean of {name} "
+                            f"(as carbon; {keys['sum']} over the seconds of the records present)",
+               "units": "kg m-2 s-1", **covers}
+    if "standard_name" in mean:
+        of_mean["standard_name"] = f"{mean['standard_name']} standard_error"
+    variables[keys["mean"]] = ((dim,), sigma * 1e-3 / seconds, of_mean)
+    return keys
 
 
 def _computed_by(directory) -> str | None:

@@ -43,7 +43,11 @@ one the CSVW standard's site-wide discovery looks for beside the CSV files):
   ``site_name``, ``site_latitude`` [degrees_north], ``site_longitude`` [degrees_east],
   ``site_utc_offset`` [h], ``utc_offset_iso8601`` (``+01:00``), ``interval_minutes``
   [min], ``time_convention``, ``time_stamp`` (``start of interval``),
-  ``time_zone`` (``local standard time, no daylight saving``).
+  ``time_zone`` (``local standard time, no daylight saving``), ``sign_convention``, and
+  the respiration choices the partitioned series rest on
+  (:func:`fluxpart.respiration_facts.respiration_facts`: ``respiration_temperature``,
+  ``respiration_temperature_delay_hours`` [h], ``respiration_temperature_basis``,
+  ``respiration_form_share_constant_q10`` [1]; since round modeller25).
 
 The folder is written under a temporary name beside the target and renamed into place:
 it is complete or absent. Same result, same bytes (no time of writing is recorded).
@@ -76,6 +80,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import OutputError
+from .respiration_facts import FACT_UNITS, respiration_facts
 from .schema import TIME_CONVENTION, units_for_table
 from .store import (
     _stored_index,
@@ -104,6 +109,9 @@ _DIALECT = {"encoding": "utf-8", "delimiter": ",", "quoteChar": "\"", "doubleQuo
 _CAUTION = ("A tower budget is one line of evidence for carbon-credit quantification, not a "
             "certified credit; the applicable crediting methodology and accredited verification "
             "decide how it may be used.")
+_SIGNS = ("nee (every table): positive = release to the atmosphere, negative = net uptake; "
+          "reco: positive = release; gpp: positive = uptake; net_uptake_t_co2_per_ha: "
+          "positive = uptake")
 #: Tables first in the metadata file, in this order; the others follow by name.
 _FIRST = ("timeseries", "daily", "monthly", "annual", "ustar", "audit", "screening")
 
@@ -307,6 +315,10 @@ def csv_tables(result, source: str | None = None, *, stored: bool = False) -> di
             fact("time_stamp", "start of interval"),
             fact("time_zone", "local standard time, no daylight saving"),
             fact("time_convention", convention),
+            fact("sign_convention", _SIGNS),
+            # the respiration choices both partitionings rest on (round modeller25)
+            *(fact(name, value, FACT_UNITS.get(name))
+              for name, value in respiration_facts(result.provenance).items()),
         ],
         "dialect": _DIALECT,
         "tables": described,

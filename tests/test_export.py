@@ -68,11 +68,14 @@ def test_time_is_utc_with_bounds_and_daily_sums_agree(exported):
                                result.daily["nee"].to_numpy(dtype=float), rtol=1e-12)
     assert dataset["nee"].attrs["cell_methods"] == "time: mean"
     assert dataset["nee_daily_sum"].attrs["cell_methods"] == \
-        "day: sum (comment: over the records present)"
-    # free text after a method goes in parentheses as "(comment: ...)": CF conventions
-    # 1.8, section 7.3 (m)
+        "day: sum (interval: 30 min comment: over the records present)"
+    # free text after a method goes in parentheses as "comment: ..." after the standardized
+    # "interval: <spacing of the records> <unit>": CF conventions 1.10, sections 7.3.2 and
+    # 7.3.3 (the keyword comment: alone is to be omitted, as the IOOS compliance checker
+    # 6.1.0 reports); the interval's unit parses with UDUNITS-2 (cf_units)
     method = dataset["nee_daily_mean"].attrs["cell_methods"]
-    assert method.startswith("day: mean (comment: ") and method.endswith(")")
+    assert method.startswith("day: mean (interval: 30 min comment: ") and method.endswith(")")
+    assert cf_units.Unit("30 min").convert(1.0, cf_units.Unit("s")) == 1800.0
 
 
 def test_flags_explain_themselves(exported):
@@ -127,6 +130,11 @@ def test_gap_filled_drivers_say_which_values_were_filled(exported):
         assert "measured" in set(decoded) and set(decoded) - {"measured"}
     # u* and RH are exported as measured (missing = NaN), so they carry no fill flag
     assert "ancillary_variables" not in dataset["ustar"].attrs
+    # u* has a CF standard name (CF standard name table version 93: canonical units m s-1,
+    # which the exported unit is in UDUNITS-2; round modeller25)
+    assert dataset["ustar"].attrs["standard_name"] == \
+        "magnitude_of_surface_friction_velocity_in_air"
+    assert cf_units.Unit(dataset["ustar"].attrs["units"]) == cf_units.Unit("m s-1")
 
 
 def test_daily_sums_link_their_uncertainty_and_coverage(exported):
@@ -377,9 +385,9 @@ def test_a_day_the_record_begins_or_ends_within_says_how_much_of_it_the_sums_cov
         assert "share_present_daily" in \
             dataset[f"{name}_daily_sum"].attrs["ancillary_variables"].split()
         assert dataset[f"{name}_daily_mean"].attrs["ancillary_variables"] == \
-            "share_present_daily"
+            f"{name}_daily_mean_sigma share_present_daily"
         assert dataset[f"{name}_daily_sum"].attrs["cell_methods"] == \
-            "day: sum (comment: over the records present)"
+            "day: sum (interval: 30 min comment: over the records present)"
     # the first day's sum is the half-hours present, integrated (1800 s each, kg -> g)
     bounds = dataset["day_bounds"].to_numpy()[0]
     inside = (dataset["time"].to_numpy() > bounds[0]) & (dataset["time"].to_numpy() < bounds[1])
@@ -454,9 +462,9 @@ def test_months_and_years_carry_the_budget_tables_with_their_intervals(exported,
                 f"{name}_annual_sum_sigma", "share_present_annual"} <= set(links)
         assert all(link in dataset.variables for link in links)
         assert dataset[f"{name}_monthly_sum"].attrs["cell_methods"] == \
-            "month: sum (comment: over the records present)"
+            "month: sum (interval: 30 min comment: over the records present)"
         assert dataset[f"{name}_annual_sum"].attrs["cell_methods"] == \
-            "year: sum (comment: over the records present)"
+            "year: sum (interval: 30 min comment: over the records present)"
         # the interval brackets the sum (a fact of any 95 % interval around its estimate)
         assert (dataset[f"{name}_annual_sum_ci95_low"] < dataset[f"{name}_annual_sum"]).all()
         assert (dataset[f"{name}_annual_sum_ci95_high"] > dataset[f"{name}_annual_sum"]).all()

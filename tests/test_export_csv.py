@@ -172,6 +172,29 @@ def test_site_facts_and_time_convention_are_stated(exported, written_demo):
     assert rows[0][0].endswith(_fact(metadata, "utc_offset_iso8601"))
 
 
+def test_the_respiration_choices_and_the_sign_convention_are_stated(exported):
+    """Round modeller25: a reader of the CSV folder could not tell which temperature drove
+    Reco (air or soil, chosen on the night data) nor the constant-Q10 form's weight, which
+    only manifest.json recorded, and the sign convention was stated per column only. The
+    group's facts now carry them, equal to manifest.json read with ``json``; their units
+    parse with cf_units (UDUNITS-2)."""
+    folder, target = exported
+    metadata = _metadata(target)
+    recorded = json.loads((folder / "manifest.json").read_text(encoding="utf-8"))["provenance"]
+    assert _fact(metadata, "respiration_temperature") == \
+        recorded["respiration_driver"]["chosen"]
+    assert _fact(metadata, "respiration_temperature_delay_hours") == \
+        recorded["respiration_driver"]["delay_hours"]
+    assert recorded["respiration_driver"]["reason"] in \
+        _fact(metadata, "respiration_temperature_basis")
+    assert _fact(metadata, "respiration_form_share_constant_q10") == \
+        recorded["respiration_form"]["share_applied"]
+    units = {item["schema:name"]: item.get("schema:unitText")
+             for item in metadata["schema:additionalProperty"]}
+    assert cf_units.Unit(units["respiration_temperature_delay_hours"]) == cf_units.Unit("hour")
+    assert cf_units.Unit(units["respiration_form_share_constant_q10"]).is_dimensionless()
+    assert "nee (every table): positive = release" in _fact(metadata, "sign_convention")
+
 def test_utc_offsets_are_iso_8601():
     """ISO 8601-1:2019 (m): a UTC offset is written ±hh:mm; India +05:30, Nepal +05:45,
     Newfoundland standard time -03:30 (IANA time zone database, common knowledge)."""
@@ -348,8 +371,9 @@ def test_the_csv_writer_knows_no_orchestrator():
     tree = ast.parse((Path(fluxpart.__file__).parent / "export_csv.py").read_text("utf-8"))
     for node in ast.walk(tree):
         if isinstance(node, ast.ImportFrom) and node.level == 1:
+            # respiration_facts reads the provenance's records; it imports no method
             assert (node.module or "") in ("errors", "schema", "store", "export", "result",
-                                           "resultdir", ""), node.module
+                                           "resultdir", "respiration_facts", ""), node.module
     code = ("import sys, fluxpart.export_csv; "
             "print(sorted(m for m in sys.modules if m.startswith('fluxpart.')))")
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,

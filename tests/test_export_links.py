@@ -5,7 +5,10 @@ Sources: CF Conventions 1.10 (Eaton et al. 2022), section 3.4 (ancillary data: a
 ``ancillary_variables`` names the variables that describe its quality), section 5.2 and
 5.3 (auxiliary coordinate variables named in ``coordinates``); the Gregorian calendar for
 the midpoints (a fact of the calendar: the middle of 1 October 2020 - 1 October 2021 lies
-in April 2021). Invented demo site only (known-truth recovery where stated).
+in April 2021); cf_units (UDUNITS-2) for unit conversions; scipy.stats.norm for the 95 %
+quantile; Lloyd & Taylor (1994) eq. 11 (reference/lloyd_taylor.toml). Invented demo site
+only (known-truth recovery where stated). Round modeller25 adds the means' 1 sigma and the
+respiration choices.
 """
 
 import numpy as np
@@ -16,6 +19,7 @@ from fluxpart.cli import main
 
 xr = pytest.importorskip("xarray")
 pytest.importorskip("h5netcdf")
+cf_units = pytest.importorskip("cf_units")
 
 
 @pytest.fixture(scope="module")
@@ -107,7 +111,6 @@ def test_the_readmes_carbon_factor_converts_the_parquet_to_the_models_units(expo
     and a full day's row of daily.parquet is the NetCDF daily mean in g m-2 d-1."""
     from pathlib import Path
 
-    cf_units = pytest.importorskip("cf_units")
     readme = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
     assert "× 12.011e-9 is kg C m-2 s-1" in readme
     mole = cf_units.Unit("umol m-2 s-1").convert(1.0, cf_units.Unit("mol m-2 s-1"))
@@ -193,3 +196,122 @@ def test_every_format_sums_the_same_records_over_a_leap_year_and_july_budget_yea
     starts = pd.DatetimeIndex(dataset["year_bounds"].to_numpy()[:, 0]) + offset
     assert list(starts) == list(pd.DatetimeIndex(annual["period_start"]))
     assert list(dataset["budget_year"].to_numpy()) == [2018, 2019, 2020]
+
+
+def test_each_period_mean_carries_its_one_sigma_in_the_means_unit(exported, written_demo,
+                                                                  leap_july):
+    """Round modeller25: a modeller comparing a model's daily, monthly or annual mean flux
+    [kg m-2 s-1] found the 1 sigma only for the sum [g m-2], with no word on what it
+    covers. Each mean now links ``<flux>_<period>_mean_sigma``: the sum's 1 sigma over the
+    seconds of the records present, converted by cf_units (UDUNITS-2) from g m-2 to
+    kg m-2; its ``comment`` is the Parquet description of the sigma (what it covers and
+    leaves out). Known truth: the annual mean +- z sigma, times the year's seconds, is the
+    stated 95 % interval of annual.parquet, with z = the standard normal's 97.5th
+    percentile (scipy.stats.norm). GPP's carries the CF standard name with the modifier
+    ``standard_error`` (CF-1.10 appendix C, (m)). On the two hourly July budget years too,
+    whose first and last are partial (seconds of the records present, not of the year)."""
+    from scipy.stats import norm
+
+    _, folder = written_demo
+    _, dataset = exported
+    tables = {"daily": pd.read_parquet(folder / "daily.parquet"),
+              "monthly": pd.read_parquet(folder / "monthly.parquet"),
+              "annual": pd.read_parquet(folder / "annual.parquet")}
+    grams = cf_units.Unit("g m-2")
+    for name in ("nee", "gpp_nighttime", "gpp_daytime", "reco_nighttime", "reco_daytime"):
+        for period, table in tables.items():
+            column = f"{name}_uncertainty_total" if period == "annual" else f"{name}_sigma"
+            seconds = table["records"].to_numpy(dtype=float) * 1800.0
+            expected = grams.convert(table[column].to_numpy(), cf_units.Unit("kg m-2")) / seconds
+            mean, sigma = dataset[f"{name}_{period}_mean"], dataset[f"{name}_{period}_mean_sigma"]
+            np.testing.assert_allclose(sigma.to_numpy(), expected, rtol=1e-12)
+            assert sigma.attrs["units"] == mean.attrs["units"] == "kg m-2 s-1"
+            assert mean.attrs["ancillary_variables"].split()[0] == sigma.name
+            assert sigma.attrs["comment"] == table.attrs["descriptions"][column]
+            assert "1 sigma" in sigma.attrs["comment"] and "not included" in sigma.attrs["comment"]
+            summed = dataset[f"{name}_{period}_sum_sigma"].attrs["comment"]
+            assert summed == sigma.attrs["comment"]
+            if name.startswith("gpp"):
+                assert sigma.attrs["standard_name"] == \
+                    "gross_primary_productivity_of_biomass_expressed_as_carbon standard_error"
+        annual = tables["annual"]
+        seconds = annual["records"].to_numpy(dtype=float) * 1800.0 * 1e3    # s x (g / kg)
+        centre = dataset[f"{name}_annual_mean"].to_numpy() * seconds
+        half = norm.ppf(0.975) * dataset[f"{name}_annual_mean_sigma"].to_numpy() * seconds
+        np.testing.assert_allclose(centre - half, annual[f"{name}_ci95_low"], rtol=1e-12)
+        np.testing.assert_allclose(centre + half, annual[f"{name}_ci95_high"], rtol=1e-12)
+        assert "not included" in dataset[f"{name}_annual_sum_ci95_low"].attrs["comment"]
+    folder, hourly, _ = leap_july
+    annual = pd.read_parquet(folder / "annual.parquet")
+    assert (annual["records"] < annual["records_expected"]).sum() == 2     # partial years
+    kilograms = hourly["nee_annual_mean_sigma"].to_numpy() * annual["records"] * 3600.0
+    np.testing.assert_allclose(kilograms * 1e3, annual["nee_uncertainty_total"], rtol=1e-12)
+
+
+def test_the_partitioned_series_name_the_respiration_temperature_that_drives_them(
+        exported, written_demo):
+    """Round modeller25: which temperature drove Reco (air or soil, chosen on the night data)
+    and the weight of the constant-Q10 form were in manifest.json only; a modeller reading
+    the NetCDF could not tell. Now global attributes give them and each partitioned series
+    names them in its ``comment``. Checked against manifest.json read with ``json`` and
+    against the paper's equation: Lloyd & Taylor (1994) eq. 11 (reference/lloyd_taylor.toml)
+    with the record's Rref and E0 (timeseries.parquet, plain pandas) reproduces the nighttime
+    Reco of the NetCDF on the temperature the attribute names (the demo's choice weights
+    the constant-Q10 form 0 and delays nothing), and not on the other."""
+    import json
+
+    from conftest import load_reference
+
+    _, folder = written_demo
+    _, dataset = exported
+    recorded = json.loads((folder / "manifest.json").read_text(encoding="utf-8"))["provenance"]
+    named = dataset.attrs["respiration_temperature"]
+    assert named == recorded["respiration_driver"]["chosen"]
+    assert dataset.attrs["respiration_temperature_delay_hours"] == 0.0 == \
+        recorded["respiration_driver"]["delay_hours"]
+    assert dataset.attrs["respiration_temperature_basis"].startswith("chosen on the night data")
+    assert dataset.attrs["respiration_form_share_constant_q10"] == 0.0 == \
+        recorded["respiration_form"]["share_applied"]
+    constants = load_reference("lloyd_taylor")["constants"]
+    series = pd.read_parquet(folder / "timeseries.parquet")
+    reco = dataset["reco_nighttime"].to_numpy() / 12.011e-9            # µmol CO2 m-2 s-1
+
+    def lloyd_taylor(celsius):
+        kelvin = cf_units.Unit("degC").convert(celsius, cf_units.Unit("K"))
+        return series["rref_nighttime"].to_numpy() * np.exp(series["e0_nighttime"].to_numpy() * (
+            1 / (constants["tref_kelvin"] - constants["t0_kelvin"])
+            - 1 / (kelvin - constants["t0_kelvin"])))
+
+    other = {"tair": "tsoil", "tsoil": "tair"}[named]
+    np.testing.assert_allclose(lloyd_taylor(dataset[named].to_numpy()), reco, rtol=1e-9)
+    assert np.nanmedian(np.abs(lloyd_taylor(dataset[other].to_numpy()) / reco - 1)) > 0.05
+    for name in ("gpp_nighttime", "gpp_daytime", "reco_nighttime", "reco_daytime"):
+        for variable in (name, f"{name}_daily_mean", f"{name}_monthly_sum",
+                         f"{name}_annual_mean"):
+            assert f"respiration temperature of both methods: {named} " in \
+                dataset[variable].attrs["comment"], variable
+    assert "comment" not in dataset["nee"].attrs and "comment" not in dataset["nee_annual_sum"].attrs
+
+
+def test_a_result_that_records_no_respiration_choice_names_none(written_demo):
+    """A result whose provenance lacks the choices (one a caller built, or an older
+    release's) gets no attribute and no comment rather than a guess; a temperature set in
+    [processing] is named "as set" with no delay (respiration_driver.resolve applies none)."""
+    import dataclasses
+
+    from fluxpart.export import to_xarray
+    from fluxpart.respiration_facts import respiration_comment, respiration_facts
+
+    result, _ = written_demo
+    bare = to_xarray(dataclasses.replace(result, provenance={}))
+    assert not any(key.startswith("respiration") for key in bare.attrs)
+    assert "comment" not in bare["reco_nighttime"].attrs
+    facts = respiration_facts({"respiration_driver": {"setting": "tsoil"},
+                               "respiration_form": {"share_applied": 0.25}})
+    assert facts == {"respiration_temperature": "tsoil",
+                     "respiration_temperature_delay_hours": 0.0,
+                     "respiration_temperature_basis": "as set in [processing] "
+                                                      "respiration_driver",
+                     "respiration_form_share_constant_q10": 0.25}
+    assert "tsoil (soil temperature), delayed 0 h" in respiration_comment(facts)
+    assert "weight 0.25 of the constant-Q10 form" in respiration_comment(facts)
