@@ -100,7 +100,14 @@ def read_toml(path, what: str) -> dict:
         If it is not valid TOML.
     """
     path = Path(path)
-    if path.exists() and not path.is_dir() and not path.is_file():
+    if path.is_dir():
+        # "cannot be read: Is a directory" left the fix to the reader (review43)
+        found = sorted(p.name for p in path.glob("*.toml"))[:5]
+        held = (f"; it holds {', '.join(repr(name) for name in found)}" if found
+                else "; it holds no .toml file")
+        raise InputFileError(f"{what} {str(path)!r} is a folder: give the TOML file "
+                             f"itself{held}")
+    if path.exists() and not path.is_file():
         # a device or a named pipe: /dev/zero was read until memory ran out, a pipe
         # without a writer waited for ever (review round thirteen)
         raise InputFileError(f"{what} {str(path)!r} is not a regular file (a device or a "

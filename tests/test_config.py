@@ -404,6 +404,21 @@ def test_a_site_config_that_is_a_pipe_or_a_device_is_refused_not_read(tmp_path):
             read_site_config(path)
 
 
+def test_a_site_config_that_is_a_folder_names_the_toml_files_in_it(tmp_path):
+    """`fluxpart check north/` (the site's folder for its config) said "cannot be read: Is a
+    directory" (review43); the error names the TOML files the folder holds, or none."""
+    from fluxpart.io import read_site_config
+
+    folder = tmp_path / "north"
+    folder.mkdir()
+    with pytest.raises(InputFileError, match="is a folder: give the TOML file itself; it "
+                                             "holds no .toml file"):
+        read_site_config(folder)
+    (folder / "site.toml").write_text("", encoding="utf-8")
+    with pytest.raises(InputFileError, match="is a folder: give the TOML file itself; it "
+                                             "holds 'site.toml'$"):
+        read_site_config(folder)
+
 def test_e0_fallback_docstring_says_what_the_daytime_method_takes():
     """Docs against the code (review22): the Config docstring, which the report's settings
     table shows, said the daytime method takes "the year's nighttime E0" where its night
