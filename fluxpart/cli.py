@@ -513,7 +513,7 @@ def _parser() -> argparse.ArgumentParser:
         description="Check DIR against its manifest, rerun it from the recorded input and "
         "settings, and compare. Exit 0: bit-identical, or reproduced within floating-point "
         "rounding; 1: any other difference or tampering; 2: error.")
-    verify.add_argument("directory", type=_path, help="result folder written by run or demo")
+    verify.add_argument("directory", type=_path, help="result folder written by run, demo or batch")
     verify.add_argument("--input", type=_path, action="append", help="the input file, if it is not "
                         "where the manifest says (relative to DIR); once per file for several")
     verify.add_argument("--config", type=_path, help="the site config, likewise (default: the recorded "
@@ -538,7 +538,7 @@ def _parser() -> argparse.ArgumentParser:
         "report", help="figures and a self-contained HTML page",
         description="Draw the figures and one self-contained HTML page from the tables of a "
         "result folder (nothing is rerun). Exit 0: written; 2: error.")
-    report.add_argument("directory", type=_path, help="result folder written by run or demo")
+    report.add_argument("directory", type=_path, help="result folder written by run, demo or batch")
     report.add_argument("--out", type=_path, help="where to write the page (default: DIR/report/)")
     report.add_argument("--quiet", action="store_true", help="no progress output")
     report.set_defaults(handler=_command_report)
@@ -554,7 +554,9 @@ def _parser() -> argparse.ArgumentParser:
     batch.add_argument("--scheduler", help="address of an existing Dask scheduler, e.g. "
                        "tcp://scheduler-host:8786; its workers must share this file system (default: a "
                        "local cluster of processes on 127.0.0.1)")
-    batch.add_argument("--workers", type=int, help="workers of the local cluster")
+    batch.add_argument("--workers", type=int,
+                       help="worker processes of the local cluster (default: 2, at most one "
+                            "per site)")
     batch.add_argument("--out", type=_path, help="output folder (default: from SITES.toml)")
     batch.add_argument("--force", action="store_true", help="rerun sites already up to date")
     batch.add_argument("--site-time-limit", type=float, metavar="MINUTES",
@@ -574,7 +576,7 @@ def _parser() -> argparse.ArgumentParser:
         "new folder with csv-metadata.json (W3C CSVW: each column's datatype, UDUNITS-2 "
         "unit and description, the site and the time convention). Exit 0: written; 2: "
         "error (no file or folder left half-written).")
-    export.add_argument("directory", type=_path, help="result folder written by run or demo")
+    export.add_argument("directory", type=_path, help="result folder written by run, demo or batch")
     export.add_argument("--netcdf", type=_path, metavar="FILE",
                         help="NetCDF file to write (record, daily, monthly and annual series)")
     export.add_argument("--csv", type=_path, metavar="FOLDER",
