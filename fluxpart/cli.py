@@ -60,7 +60,9 @@ def _format_annual(annual) -> str:
     if "net_uptake_t_co2_per_ha" in annual.columns:
         from .units import T_CO2_HA_PER_G_C_M2
 
-        lines += ["", "Net uptake [t CO2 ha-1 per year; positive = uptake]:"]
+        # a partial year's tonnes are its records' sum, not a rate per year (review43)
+        lines += ["", "Net uptake [t CO2 ha-1 over each budget year's records; positive = "
+                  "uptake]:"]
         for year, row in annual.iterrows():
             partial = ""
             if not row.get("complete", True) and row.get("records_expected", 0) > 0:
