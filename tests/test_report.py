@@ -1266,6 +1266,29 @@ def test_a_method_difference_rounded_to_zero_shows_no_minus_sign():
     assert "GPP +0.0 %" in line and "Reco -1.2 %" in line and "-0.0" not in line
 
 
+def test_method_agreement_says_where_the_daytime_method_took_the_nighttime_e0():
+    """Where the daytime method's windows took the nighttime method's E0 (e0_source
+    "fallback"), their agreement is not that of two independent estimates: the card says
+    so, counting the period's windows (review43: only the warnings said it, beside a card
+    reading "agree"). Windows of another year are not counted; none shared, no clause."""
+    index = pd.date_range("2021-01-01", "2022-12-31 23:30", freq="30min")
+    annual = pd.DataFrame({"nee": [-100.0, -90.0], "methods_agree": [True, True],
+                           "gpp_relative_difference": [0.01, 0.01],
+                           "reco_relative_difference": [0.02, 0.02]},
+                          index=pd.Index([2021, 2022], name="year"))
+    centres = pd.to_datetime(["2021-03-01", "2021-06-01", "2021-09-01", "2022-06-01"])
+    daytime = pd.DataFrame({"window_centre": centres,
+                            "e0_source": ["fallback", "fallback", "pooled", "pooled"]})
+    written = report.Written(manifest={}, tables={
+        "timeseries": pd.DataFrame({"nee_filled": 1.0}, index=index), "annual": annual,
+        "parameters_daytime": daytime})
+    summary, _ = report._summary_card(written)
+    lines = [re.sub(r"<[^>]+>", "", text) for text in
+             re.findall(r"Method agreement:</strong>(.*?)</li>", summary)]
+    assert lines[0].endswith("; not independent: the daytime method took the nighttime "
+                             "method's E0 in 2 of 3 light-response windows.")
+    assert "not independent" not in lines[1] and lines[1].endswith("Reco +2.0 %).")
+
 def test_methods_name_the_declared_events_only_where_the_result_has_them():
     """The report draws only what was written: a result's config with ``events`` (0.22.0)
     names them in the gap-filling item; one without (or written before) says nothing of
