@@ -346,11 +346,19 @@ class VerifyReport:
                 lines = [f"NOT reproduced: {len(failures)} difference(s) between "
                          f"{self.directory} and its recomputation:"]
             lines += [f"  {d.describe()}" for d in failures + list(self.rounding)]
+            # a file changed after it was written is no effect of code: naming the code
+            # alone as the likely cause beside it read as an all-clear (review43)
+            edited = sorted({d.table for d in failures if d.kind in ("hash", "seal")})
             if self.code_changed and any(d.kind in ("value", "rows", "columns", "table",
                                                     "rounding", "manifest")
                                          for d in failures + list(self.rounding)):
-                lines.append("likely cause: the product's code differs from the code that "
-                             "wrote the result (code fingerprint changed; see below)")
+                lines.append("likely cause: " + (
+                    f"{', '.join(edited)} changed after it was written (its SHA-256 or the "
+                    "manifest's seal is not the recorded one), which no code change "
+                    "explains; the product's code differs too (code fingerprint changed; "
+                    "see below)" if edited else
+                    "the product's code differs from the code that wrote the result (code "
+                    "fingerprint changed; see below)"))
         if self.identity:
             lines.append(f"result: {self.identity}")
         lines += [f"environment: {e}" for e in self.environment]

@@ -378,6 +378,14 @@ def test_changed_code_fingerprint_is_named_as_likely_cause(copy, monkeypatch, ca
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
     assert "likely cause: the product's code differs" in out
+    # a table edited without resealing is named as the cause: changed code does not
+    # explain a file whose SHA-256 is not the recorded one (review43: the code alone was
+    # named, which an auditor could read as an all-clear for the edit)
+    _set_value(copy / "out", "daily", "nee", lambda v: v + 1.0, reseal=False)
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert "likely cause: daily changed after it was written" in out
+    assert "which no code change explains; the product's code differs too" in out
 
 
 def test_demo_result_is_regenerated_and_verified(tmp_path):
