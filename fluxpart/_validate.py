@@ -89,6 +89,23 @@ def as_float(values, name: str, length: int) -> np.ndarray:
     return array
 
 
+def read_site_config_toml(path) -> dict:
+    """Parse the site config `path` (:func:`read_toml`), refusing a network file.
+
+    Raises
+    ------
+    ConfigError
+        If the file holds a ``[batch]`` table: a network file given to ``run`` or
+        ``check`` was refused as "top-level table [batch] is unknown", or, by ``run``,
+        for the output folder its default ``--out`` named (review43).
+    """
+    document = read_toml(path, "site config")
+    if isinstance(document.get("batch"), dict):
+        raise ConfigError(f"{str(path)!r} is a network file (its [batch] table lists site "
+                          "configs), not a site config: process it with fluxpart batch "
+                          f"{str(path)}, or give one of the site configs it lists")
+    return document
+
 def read_toml(path, what: str) -> dict:
     """Parse the TOML file `path`; `what` names it in errors (e.g. ``"site config"``).
 

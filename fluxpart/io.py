@@ -57,7 +57,7 @@ from ._validate import (
     other_system_path_hint,
     owner_file_message,
     printable_line,
-    read_toml,
+    read_site_config_toml,
     refuse_binary,
     unicode_form_hint,
 )
@@ -618,7 +618,7 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
     offset or stamp position would silently shift day and night by hours.
     """
     path = Path(path)
-    document = read_toml(path, "site config")
+    document = read_site_config_toml(path)
 
     _check_keys(document, _TOP_LEVEL_KEYS, "site config: top-level table", "[{key}]")
     for table in ("site", "input"):

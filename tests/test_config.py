@@ -3,6 +3,7 @@
 import dataclasses
 import json
 import os
+import re
 from pathlib import Path
 
 import numpy as np
@@ -418,6 +419,28 @@ def test_a_site_config_that_is_a_folder_names_the_toml_files_in_it(tmp_path):
     with pytest.raises(InputFileError, match="is a folder: give the TOML file itself; it "
                                              "holds 'site.toml'$"):
         read_site_config(folder)
+
+def test_a_network_file_given_as_a_site_config_names_fluxpart_batch(tmp_path, capsys):
+    """`fluxpart run network.toml` refused it for the folder its default --out named (the
+    batch's own output folder), and `check` as "top-level table [batch] is unknown"
+    (review43): both name the file as a network file and the command that takes it,
+    before any output folder is looked at."""
+    from fluxpart.cli import main
+    from fluxpart.io import read_site_config
+
+    network = tmp_path / "network.toml"
+    network.write_text('[batch]\nsites = ["north.toml"]\nout = "network-output"\n',
+                       encoding="utf-8")
+    (tmp_path / "network-output").mkdir()
+    (tmp_path / "network-output" / "network.json").write_text("{}", encoding="utf-8")
+    expected = "is a network file (its [batch] table lists site configs), not a site config"
+    for read in (read_site_config, Config.from_toml):
+        with pytest.raises(ConfigError, match=re.escape(expected)):
+            read(network)
+    for command in ("run", "check"):
+        assert main([command, str(network)]) == 2
+        err = capsys.readouterr().err
+        assert expected in err and f"fluxpart batch {network}" in err
 
 def test_e0_fallback_docstring_says_what_the_daytime_method_takes():
     """Docs against the code (review22): the Config docstring, which the report's settings
