@@ -527,3 +527,16 @@ def test_a_misspelt_keyword_of_site_is_named_with_the_setting_meant():
     assert dataclasses.replace(site, canopy="short").canopy == "short"
     with pytest.raises(ConfigError, match="latitude"):
         Site("Quillmoor (fictional)", 149.3, 10.2)
+
+
+def test_every_setting_is_named_in_the_readme_table_of_what_it_computes():
+    """Docs against the code: each field of Config is named in the settings column of the
+    README's "What it computes" table, by name or by a `prefix_*` the table gives (review43:
+    rg_relative_margin and four settings of the moving point test were in no row)."""
+    text = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
+    table = text[text.index("## What it computes"):text.index("## Output files")]
+    prefixes = re.findall(r"`(\w+)_\*`", table)
+    unnamed = [field.name for field in dataclasses.fields(Config)
+               if f"`{field.name}`" not in table
+               and not any(field.name.startswith(prefix + "_") for prefix in prefixes)]
+    assert not unnamed, unnamed
