@@ -746,6 +746,35 @@ def test_the_cumulative_legend_covers_no_curve_of_a_two_budget_year_record(folde
     assert legend.y0 >= 0
 
 
+def test_the_monthly_legend_lies_below_the_plotting_area(folder):
+    """The monthly sums' legend (five entries) lies below the axes and their date labels,
+    by matplotlib's own window extents: in the upper left it covered the first summer's
+    GPP peak of a two-year record (review43)."""
+    from matplotlib.font_manager import FontProperties
+
+    result = folder["result"]
+    written = Written(manifest={}, tables={"timeseries": result.timeseries,
+                                           "monthly": result.monthly,
+                                           "annual": result.annual})
+    drawing = figures.Drawing()
+    drawn = []
+    original = drawing.png
+    drawing.png = lambda figure: (drawn.append(figure), original(figure))[1]
+    with drawing.mpl.rc_context():
+        figures.figure_monthly(drawing, written)
+        rc = drawing.mpl.rcParams
+        # the date labels' height below the axes: tick length, pad and font [points]
+        font = FontProperties(size=rc["xtick.labelsize"]).get_size_in_points()
+        labels = rc["xtick.major.size"] + rc["xtick.major.pad"] + font
+    figure = drawn[0]
+    renderer = figure.canvas.get_renderer()
+    axis = figure.axes[0]
+    legend = axis.get_legend().get_window_extent(renderer)
+    plot = axis.get_window_extent(renderer)
+    assert legend.y1 <= plot.y0 - labels * figure.dpi / 72, (legend, plot, labels)
+    assert len(axis.get_legend().get_texts()) == 5
+    assert legend.y0 >= 0
+
 def test_annual_table_headings_name_a_budget_years_days():
     """`year` is the calendar year a budget year starts in (README, budget year); a July-June
     year's column was headed "2020" alone, which reads as January-December 2020 (review
