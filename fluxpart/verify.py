@@ -786,7 +786,9 @@ def result_identity(manifest: dict) -> str:
     -------
     str
         For example ``seed 0; input tower.csv (sha256 a266f768b503...); site config
-        site.toml (sha256 79a5889d4710...); written by fluxpart 0.12.0``; several input
+        site.toml (sha256 79a5889d4710...); written by fluxpart 0.12.0`` (``seed`` is
+        the run's setting; a demo result adds ``the invented demo site (data seed 1,
+        variant c3)``, the seed its data were drawn with); several input
         files are named by the first and their count, with the SHA-256 of their names and
         hashes (:meth:`fluxpart.io.SiteConfig.input_sha256`); parts not recorded are left
         out.
@@ -797,7 +799,12 @@ def result_identity(manifest: dict) -> str:
     provenance = manifest.get("provenance") if isinstance(manifest.get("provenance"), dict) \
         else {}
     if "demo" in provenance:
-        parts.append("the invented demo site")
+        # the data's own seed and variant (demo --seed): "seed 0" above is the run's
+        # setting, which an auditor of a `demo --seed 1` folder read as the data's (review43)
+        demo = provenance["demo"] if isinstance(provenance["demo"], dict) else {}
+        drawn = ", ".join(f"{label} {demo[key]}" for key, label in
+                          (("seed", "data seed"), ("variant", "variant")) if key in demo)
+        parts.append("the invented demo site" + (f" ({drawn})" if drawn else ""))
     for key, label in (("input", "input"), ("site_config", "site config")):
         entry = provenance.get(key)
         if isinstance(entry, dict) and entry.get("sha256"):

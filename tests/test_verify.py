@@ -678,6 +678,11 @@ def test_identity_of_several_input_files_does_not_give_the_first_the_lists_hash(
         "files": [{"path": f"../data/{year}/01.csv", "sha256": own["a.csv"]}
                   for year in (2022, 2023)]}}}
     assert "input ../data/2022/01.csv and 1 more file(s)" in result_identity(yearly)
+    # a demo folder names its data's seed beside the run's (review43: `demo --seed 1` read
+    # "seed 0; the invented demo site")
+    demo = {"seed": 0, "provenance": {"demo": {"seed": 1, "variant": "c3"}}}
+    assert result_identity(demo).startswith("seed 0; the invented demo site (data seed 1, "
+                                            "variant c3)")
 
 
 def test_a_difference_column_rounds_with_its_operands():
