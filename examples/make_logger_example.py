@@ -73,7 +73,7 @@ def write_logger_example(directory, seed=3, frame=None) -> Path:
     # the analyser fault invalidates the flux: the twin of these records is rejected
     columns = {
         "Date": dates, "Time": times,
-        "Fc_turb": _text(turbulent, 3), "Sc_profile": _text(storage, 3),
+        "co2_turb": _text(turbulent, 3), "co2_store": _text(storage, 3),
         "PPFD_in": _text(frame["rg"].to_numpy() * PPFD_PER_RG, 2),
         "T_air": _text(frame["tair"].to_numpy(), 2), "RH": _text(frame["rh"].to_numpy(), 1),
         "u_star": _text(frame["ustar"].to_numpy(), 3), "T_soil": _text(frame["tsoil"].to_numpy(), 2),
@@ -119,8 +119,8 @@ missing = [-9999]
 flag_accept = [0, 1]                 # QC_flux 1 = good, lower class; QC_irga must be 0
 
 [input.columns]
-nee = "Fc_turb"
-storage = "Sc_profile"               # added to nee
+nee = "co2_turb"
+storage = "co2_store"                # added to nee
 ppfd = "PPFD_in"                     # converted to rg
 tair = "T_air"
 rh = "RH"                            # vpd derived from rh and tair

@@ -89,6 +89,23 @@ def as_float(values, name: str, length: int) -> np.ndarray:
     return array
 
 
+def read_site_config_toml(path) -> dict:
+    """Parse the site config `path` (:func:`read_toml`), refusing a network file.
+
+    Raises
+    ------
+    ConfigError
+        If the file holds a ``[batch]`` table: a network file given to ``run`` or
+        ``check`` was refused as "top-level table [batch] is unknown", or, by ``run``,
+        for the output folder its default ``--out`` named (review43).
+    """
+    document = read_toml(path, "site config")
+    if isinstance(document.get("batch"), dict):
+        raise ConfigError(f"{str(path)!r} is a network file (its [batch] table lists site "
+                          "configs), not a site config: process it with fluxpart batch "
+                          f"{str(path)}, or give one of the site configs it lists")
+    return document
+
 def read_toml(path, what: str) -> dict:
     """Parse the TOML file `path`; `what` names it in errors (e.g. ``"site config"``).
 
@@ -100,7 +117,14 @@ def read_toml(path, what: str) -> dict:
         If it is not valid TOML.
     """
     path = Path(path)
-    if path.exists() and not path.is_dir() and not path.is_file():
+    if path.is_dir():
+        # "cannot be read: Is a directory" left the fix to the reader (review43)
+        found = sorted(p.name for p in path.glob("*.toml"))[:5]
+        held = (f"; it holds {', '.join(repr(name) for name in found)}" if found
+                else "; it holds no .toml file")
+        raise InputFileError(f"{what} {str(path)!r} is a folder: give the TOML file "
+                             f"itself{held}")
+    if path.exists() and not path.is_file():
         # a device or a named pipe: /dev/zero was read until memory ran out, a pipe
         # without a writer waited for ever (review round thirteen)
         raise InputFileError(f"{what} {str(path)!r} is not a regular file (a device or a "

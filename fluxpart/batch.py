@@ -346,6 +346,11 @@ def read_sites_file(path) -> NetworkFile:
     """
     path = Path(path)
     document = read_toml(path, "network file")
+    if "batch" not in document and {"site", "input"} & set(document):
+        # "unknown table [site]" left the fix to the reader (review43)
+        raise ConfigError(f"{str(path)!r} is a site config, not a network file: process it "
+                          f"with fluxpart run {str(path)}, or list it in a network file's "
+                          '[batch] sites = ["..."]')
     for key in document:
         if key != "batch":
             raise ConfigError(f"network file {str(path)!r}: unknown table [{key}]"

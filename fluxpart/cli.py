@@ -60,7 +60,9 @@ def _format_annual(annual) -> str:
     if "net_uptake_t_co2_per_ha" in annual.columns:
         from .units import T_CO2_HA_PER_G_C_M2
 
-        lines += ["", "Net uptake [t CO2 ha-1 per year; positive = uptake]:"]
+        # a partial year's tonnes are its records' sum, not a rate per year (review43)
+        lines += ["", "Net uptake [t CO2 ha-1 over each budget year's records; positive = "
+                  "uptake]:"]
         for year, row in annual.iterrows():
             partial = ""
             if not row.get("complete", True) and row.get("records_expected", 0) > 0:
@@ -513,7 +515,8 @@ def _parser() -> argparse.ArgumentParser:
         description="Check DIR against its manifest, rerun it from the recorded input and "
         "settings, and compare. Exit 0: bit-identical, or reproduced within floating-point "
         "rounding; 1: any other difference or tampering; 2: error.")
-    verify.add_argument("directory", type=_path, help="result folder written by run or demo")
+    verify.add_argument("directory", type=_path,
+                        help="result folder written by run, demo or batch")
     verify.add_argument("--input", type=_path, action="append", help="the input file, if it is not "
                         "where the manifest says (relative to DIR); once per file for several")
     verify.add_argument("--config", type=_path, help="the site config, likewise (default: the recorded "
@@ -538,7 +541,8 @@ def _parser() -> argparse.ArgumentParser:
         "report", help="figures and a self-contained HTML page",
         description="Draw the figures and one self-contained HTML page from the tables of a "
         "result folder (nothing is rerun). Exit 0: written; 2: error.")
-    report.add_argument("directory", type=_path, help="result folder written by run or demo")
+    report.add_argument("directory", type=_path,
+                        help="result folder written by run, demo or batch")
     report.add_argument("--out", type=_path, help="where to write the page (default: DIR/report/)")
     report.add_argument("--quiet", action="store_true", help="no progress output")
     report.set_defaults(handler=_command_report)
@@ -554,7 +558,9 @@ def _parser() -> argparse.ArgumentParser:
     batch.add_argument("--scheduler", help="address of an existing Dask scheduler, e.g. "
                        "tcp://scheduler-host:8786; its workers must share this file system (default: a "
                        "local cluster of processes on 127.0.0.1)")
-    batch.add_argument("--workers", type=int, help="workers of the local cluster")
+    batch.add_argument("--workers", type=int,
+                       help="worker processes of the local cluster (default: 2, at most one "
+                            "per site)")
     batch.add_argument("--out", type=_path, help="output folder (default: from SITES.toml)")
     batch.add_argument("--force", action="store_true", help="rerun sites already up to date")
     batch.add_argument("--site-time-limit", type=float, metavar="MINUTES",
@@ -569,12 +575,15 @@ def _parser() -> argparse.ArgumentParser:
         description="--netcdf: write the record series (at the record interval, 30 or 60 "
         "min), the daily and monthly series and the annual budget with its 95 % interval "
         "of a result folder as one CF-1.10 NetCDF file, carbon fluxes in kg m-2 s-1, sums "
-        "in g m-2, times in UTC with cell bounds. --csv: write every table as a plain CSV "
-        "file (UTF-8, comma, ISO 8601 times with the UTC offset, empty = missing) into a "
+        "in g m-2, times in UTC (the middle of each record, day, month or year) with cell "
+        "bounds. --csv: write every "
+        "table as a plain CSV file (UTF-8, comma, ISO 8601 times of interval starts with "
+        "the UTC offset, empty = missing) into a "
         "new folder with csv-metadata.json (W3C CSVW: each column's datatype, UDUNITS-2 "
         "unit and description, the site and the time convention). Exit 0: written; 2: "
         "error (no file or folder left half-written).")
-    export.add_argument("directory", type=_path, help="result folder written by run or demo")
+    export.add_argument("directory", type=_path,
+                        help="result folder written by run, demo or batch")
     export.add_argument("--netcdf", type=_path, metavar="FILE",
                         help="NetCDF file to write (record, daily, monthly and annual series)")
     export.add_argument("--csv", type=_path, metavar="FOLDER",

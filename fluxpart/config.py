@@ -16,7 +16,7 @@ import math
 from dataclasses import asdict, dataclass, fields
 from typing import NamedTuple
 
-from ._validate import read_toml
+from ._validate import read_site_config_toml
 from .errors import ConfigError
 
 __all__ = ["Config", "UnknownSettingError", "keyword_checked", "setting_text", "suggest_key"]
@@ -594,7 +594,7 @@ class Config:
         computed before then recorded in its manifest, taken by ``fluxpart verify``
         to rerun that result as it was computed.
         """
-        document = read_toml(path, "site config")
+        document = read_site_config_toml(path)
         processing = document.get("processing", {})
         if not isinstance(processing, dict):
             raise ConfigError("[processing] must be a table of settings")

@@ -96,7 +96,8 @@ def format_check(site, report, table: pd.DataFrame, problems=()) -> str:
     -------
     str
         Site, period, interval, records, stamps inserted, columns read, the coverage
-        table as aligned text and every problem found, ending with a newline.
+        table as aligned text (with a line saying what the ``nee_flag`` row counts, where
+        it is present) and every problem found, ending with a newline.
     """
     lines = [
         f"site              {site.name} (latitude {site.latitude:g}, longitude "
@@ -107,6 +108,10 @@ def format_check(site, report, table: pd.DataFrame, problems=()) -> str:
         _format_table(table),
         "",
     ]
+    if "nee_flag" in table.index:
+        # the row holds the combined verdict, not the file's flag values (0/2 read as 0/1)
+        lines[-1:-1] = ["nee_flag: the verdict of the site's flag column(s), 0 = kept, "
+                        "1 = rejected (which of the file's values keep a record: the site flag line above)"]
     listed = [*report.warnings, *problems]
     if listed:
         lines.append(f"problems found ({len(listed)})")

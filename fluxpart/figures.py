@@ -1284,7 +1284,7 @@ def figure_clock(drawing, written, interval) -> Figure:
 
 def figure_monthly(drawing, written) -> Figure:
     monthly = written.table("monthly")
-    figure = drawing.figure(10.0, 4.4, left=0.08, right=0.98, top=0.9, bottom=0.12)
+    figure = drawing.figure(10.0, 4.4, left=0.08, right=0.98, top=0.9, bottom=0.2)
     axis = figure.subplots()
     x = pd.DatetimeIndex(monthly.index) + pd.Timedelta(days=14) if len(monthly) else []
     styles = [("gpp_nighttime", "GPP, nighttime method", _GREEN, "-", "o"),
@@ -1308,7 +1308,8 @@ def figure_monthly(drawing, written) -> Figure:
     axis.set_ylabel(f"Monthly sum [{_CARBON_UNIT}]")
     drawing.few_ticks(axis, x=0, y=6)
     axis.set_title("Monthly sums by both partitioning methods", loc="left")
-    axis.legend(loc="upper left", ncols=3)
+    # below the axes: inside, it covered the first summer's GPP peak (review43)
+    axis.legend(loc="upper center", bbox_to_anchor=(0.5, -0.1), ncols=5, fontsize=8)
     bar_text = ("error bars are ±1.96 times the monthly 1-sigma written by the run" if bars
                 else "the run wrote no monthly 1-sigma, so no error bars")
     caption = ("Solid lines (nighttime method) and dashed lines (daytime method) should run "

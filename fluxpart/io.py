@@ -57,7 +57,7 @@ from ._validate import (
     other_system_path_hint,
     owner_file_message,
     printable_line,
-    read_toml,
+    read_site_config_toml,
     refuse_binary,
     unicode_form_hint,
 )
@@ -618,7 +618,7 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
     offset or stamp position would silently shift day and night by hours.
     """
     path = Path(path)
-    document = read_toml(path, "site config")
+    document = read_site_config_toml(path)
 
     _check_keys(document, _TOP_LEVEL_KEYS, "site config: top-level table", "[{key}]")
     for table in ("site", "input"):
@@ -2810,7 +2810,7 @@ def _closed_from(text: str, line: int, width: int, delimiter: str,
     closing each line; only the second adds the delimiter after the empty last field,
     so the lines from `line` must then end with it twice (review41: a column inserted
     mid-file before an empty last column was read with every later column one to the
-    left, "Ta" holding Rg, and the run named unit mix-ups instead).
+    left, the air temperature column holding Rg, and the run named unit mix-ups instead).
     """
     if delimiter == _WHITESPACE:
         return ""
@@ -3417,7 +3417,7 @@ def _header_rows_warning(parts: list) -> str | None:
             "in a copy of those files (where only the spelling differs, nothing is wrong)")
 
 
-#: A unit written at the end of a column name: "VPD [hPa]", "Tair (degC)", "Fc(umol/m2/s)".
+#: A unit written at the end of a column name: "VPD [hPa]", "Tair (degC)", "co2_flux(umol/m2/s)".
 _NAME_UNIT = re.compile(r"[\[(]\s*([^\[\]()]+?)\s*[\])]\s*$")
 
 

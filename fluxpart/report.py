@@ -467,7 +467,7 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                 f"{'the two partitioning methods agree' if agree else 'the two partitioning methods DISAGREE'}"
                 f"</span> (daytime minus nighttime: {', '.join(relative) or 'n/a'}"
                 + (f"; margin ±{100 * float(margin):.0f} %" if _finite(margin) else "")
-                + ").</li>")
+                + ")" + _shared_e0_note(written, first, last) + ".</li>")
         cards.append(f'<div class="card" data-period="{_e(label)}"><h3>'
                      f"{_period_heading(label, first, last, partial, row)}</h3>{headline}"
                      f"{flux_table}{unfitted}<ul>{''.join(facts)}</ul></div>")
@@ -477,6 +477,23 @@ def _summary_card(written: Written) -> tuple[str, bool]:
               f"{_e(clock_sentence(written.manifest))}.</p>")
     return record + "".join(cards), combined_used
 
+
+def _shared_e0_note(written: Written, first, last) -> str:
+    """A clause for the method-agreement line where the daytime method took the nighttime
+    method's E0 (``e0_source`` ``fallback`` in the daytime parameter table) in windows
+    centred from `first` to `last`: the two then share their temperature sensitivity, and
+    their agreement is weaker evidence than two independent estimates (review43: the card
+    said "agree" while only the warnings said so)."""
+    table = written.table("parameters_daytime")
+    if not {"e0_source", "window_centre"} <= set(table.columns):
+        return ""
+    centres = pd.to_datetime(table["window_centre"])
+    inside = ((centres >= first) & (centres <= last)).to_numpy()
+    shared = int((table["e0_source"].astype(str).to_numpy()[inside] == "fallback").sum())
+    if not shared:
+        return ""
+    return (f"; not independent: the daytime method took the nighttime method's E0 in "
+            f"{shared} of {int(inside.sum())} light-response windows")
 
 def _reading_notes(combined_used: bool) -> str:
     notes = [

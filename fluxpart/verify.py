@@ -346,11 +346,19 @@ class VerifyReport:
                 lines = [f"NOT reproduced: {len(failures)} difference(s) between "
                          f"{self.directory} and its recomputation:"]
             lines += [f"  {d.describe()}" for d in failures + list(self.rounding)]
+            # a file changed after it was written is no effect of code: naming the code
+            # alone as the likely cause beside it read as an all-clear (review43)
+            edited = sorted({d.table for d in failures if d.kind in ("hash", "seal")})
             if self.code_changed and any(d.kind in ("value", "rows", "columns", "table",
                                                     "rounding", "manifest")
                                          for d in failures + list(self.rounding)):
-                lines.append("likely cause: the product's code differs from the code that "
-                             "wrote the result (code fingerprint changed; see below)")
+                lines.append("likely cause: " + (
+                    f"{', '.join(edited)} changed after it was written (its SHA-256 or the "
+                    "manifest's seal is not the recorded one), which no code change "
+                    "explains; the product's code differs too (code fingerprint changed; "
+                    "see below)" if edited else
+                    "the product's code differs from the code that wrote the result (code "
+                    "fingerprint changed; see below)"))
         if self.identity:
             lines.append(f"result: {self.identity}")
         lines += [f"environment: {e}" for e in self.environment]
@@ -778,7 +786,9 @@ def result_identity(manifest: dict) -> str:
     -------
     str
         For example ``seed 0; input tower.csv (sha256 a266f768b503...); site config
-        site.toml (sha256 79a5889d4710...); written by fluxpart 0.12.0``; several input
+        site.toml (sha256 79a5889d4710...); written by fluxpart 0.12.0`` (``seed`` is
+        the run's setting; a demo result adds ``the invented demo site (data seed 1,
+        variant c3)``, the seed its data were drawn with); several input
         files are named by the first and their count, with the SHA-256 of their names and
         hashes (:meth:`fluxpart.io.SiteConfig.input_sha256`); parts not recorded are left
         out.
@@ -789,7 +799,12 @@ def result_identity(manifest: dict) -> str:
     provenance = manifest.get("provenance") if isinstance(manifest.get("provenance"), dict) \
         else {}
     if "demo" in provenance:
-        parts.append("the invented demo site")
+        # the data's own seed and variant (demo --seed): "seed 0" above is the run's
+        # setting, which an auditor of a `demo --seed 1` folder read as the data's (review43)
+        demo = provenance["demo"] if isinstance(provenance["demo"], dict) else {}
+        drawn = ", ".join(f"{label} {demo[key]}" for key, label in
+                          (("seed", "data seed"), ("variant", "variant")) if key in demo)
+        parts.append("the invented demo site" + (f" ({drawn})" if drawn else ""))
     for key, label in (("input", "input"), ("site_config", "site config")):
         entry = provenance.get(key)
         if isinstance(entry, dict) and entry.get("sha256"):

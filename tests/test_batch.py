@@ -145,6 +145,14 @@ def test_bad_network_file_exits_2(tmp_path, capsys):
         batch.read_sites_file(tmp_path / "missing.toml")
 
 
+def test_a_site_config_given_to_batch_names_fluxpart_run(tmp_path):
+    """`fluxpart batch site.toml` said "unknown table [site]; valid settings: batch"
+    (review43); a site config is named as one, with the command that takes it."""
+    site = REPOSITORY / "examples" / "quillmoor_grassland.toml"
+    with pytest.raises(ConfigError, match=r"is a site config, not a network file: process "
+                                          r"it with fluxpart run .*quillmoor_grassland\.toml"):
+        batch.read_sites_file(site)
+
 def test_example_network_file_lists_the_example_sites():
     """examples/network.toml parses and names the four invented example towers."""
     network = batch.read_sites_file(REPOSITORY / "examples" / "network.toml")

@@ -188,6 +188,20 @@ def test_cli_names_the_budget_year_periods(two_years):
     assert "Budget years" not in _format_annual(aggregate(frame, 30).annual)
 
 
+def test_cli_net_uptake_of_a_partial_year_is_not_headed_per_year():
+    """The printed tonnes of a 3.6-month year are that part's sum, not scaled up (README
+    cautions): the heading said "t CO2 ha-1 per year" above it (review43)."""
+    from fluxpart.cli import _format_annual
+
+    annual = pd.DataFrame({"nee": [-120.0], "complete": [False], "records": [5185],
+                           "records_expected": [17520], "net_uptake_t_co2_per_ha": [4.4],
+                           "net_uptake_t_co2_per_ha_uncertainty": [0.1],
+                           "ustar_threshold": [0.2]}, index=pd.Index([2022], name="year"))
+    text = _format_annual(annual)
+    assert "per year" not in text
+    assert "Net uptake [t CO2 ha-1 over each budget year's records; positive = uptake]" in text
+    assert "partial year, 3.6 months: not an annual total" in text
+
 def test_cli_uncertainty_parts_combine_into_the_printed_total(written_demo):
     """The printed parts of each flux's uncertainty combine in quadrature into its printed
     total, as the table's header says (root sum of squares of independent 1-sigma parts,

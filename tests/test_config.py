@@ -3,6 +3,7 @@
 import dataclasses
 import json
 import os
+import re
 from pathlib import Path
 
 import numpy as np
@@ -404,6 +405,43 @@ def test_a_site_config_that_is_a_pipe_or_a_device_is_refused_not_read(tmp_path):
             read_site_config(path)
 
 
+def test_a_site_config_that_is_a_folder_names_the_toml_files_in_it(tmp_path):
+    """`fluxpart check north/` (the site's folder for its config) said "cannot be read: Is a
+    directory" (review43); the error names the TOML files the folder holds, or none."""
+    from fluxpart.io import read_site_config
+
+    folder = tmp_path / "north"
+    folder.mkdir()
+    with pytest.raises(InputFileError, match="is a folder: give the TOML file itself; it "
+                                             "holds no .toml file"):
+        read_site_config(folder)
+    (folder / "site.toml").write_text("", encoding="utf-8")
+    with pytest.raises(InputFileError, match="is a folder: give the TOML file itself; it "
+                                             "holds 'site.toml'$"):
+        read_site_config(folder)
+
+def test_a_network_file_given_as_a_site_config_names_fluxpart_batch(tmp_path, capsys):
+    """`fluxpart run network.toml` refused it for the folder its default --out named (the
+    batch's own output folder), and `check` as "top-level table [batch] is unknown"
+    (review43): both name the file as a network file and the command that takes it,
+    before any output folder is looked at."""
+    from fluxpart.cli import main
+    from fluxpart.io import read_site_config
+
+    network = tmp_path / "network.toml"
+    network.write_text('[batch]\nsites = ["north.toml"]\nout = "network-output"\n',
+                       encoding="utf-8")
+    (tmp_path / "network-output").mkdir()
+    (tmp_path / "network-output" / "network.json").write_text("{}", encoding="utf-8")
+    expected = "is a network file (its [batch] table lists site configs), not a site config"
+    for read in (read_site_config, Config.from_toml):
+        with pytest.raises(ConfigError, match=re.escape(expected)):
+            read(network)
+    for command in ("run", "check"):
+        assert main([command, str(network)]) == 2
+        err = capsys.readouterr().err
+        assert expected in err and f"fluxpart batch {network}" in err
+
 def test_e0_fallback_docstring_says_what_the_daytime_method_takes():
     """Docs against the code (review22): the Config docstring, which the report's settings
     table shows, said the daytime method takes "the year's nighttime E0" where its night
@@ -489,3 +527,16 @@ def test_a_misspelt_keyword_of_site_is_named_with_the_setting_meant():
     assert dataclasses.replace(site, canopy="short").canopy == "short"
     with pytest.raises(ConfigError, match="latitude"):
         Site("Quillmoor (fictional)", 149.3, 10.2)
+
+
+def test_every_setting_is_named_in_the_readme_table_of_what_it_computes():
+    """Docs against the code: each field of Config is named in the settings column of the
+    README's "What it computes" table, by name or by a `prefix_*` the table gives (review43:
+    rg_relative_margin and four settings of the moving point test were in no row)."""
+    text = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
+    table = text[text.index("## What it computes"):text.index("## Output files")]
+    prefixes = re.findall(r"`(\w+)_\*`", table)
+    unnamed = [field.name for field in dataclasses.fields(Config)
+               if f"`{field.name}`" not in table
+               and not any(field.name.startswith(prefix + "_") for prefix in prefixes)]
+    assert not unnamed, unnamed

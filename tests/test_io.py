@@ -929,6 +929,30 @@ def test_format_check_text(tmp_path):
     assert " 4 (0.1 d) " in table_lines[1]
     assert "problems found (1)" in text and "nee: 2 value(s) outside" in text
     assert text.endswith("\n")
+    assert "nee_flag:" not in text                  # no flag column read, no line on it
+
+
+def test_format_check_says_what_the_flag_row_counts(tmp_path):
+    """A file's flag of 0 (good) and 2 (bad) shows as 0 and 1 in the coverage row, the
+    verdict under flag_accept: the check says so beside the table (review43: a tower
+    scientist read "max 1" as the file's largest flag value)."""
+    records = _records(periods=96)
+    frame = records.assign(nee_flag=np.where(np.arange(96) % 5 == 0, 1.0, 0.0))
+    site = read_site_config(_site_toml(tmp_path)).site
+    text = format_check(site, _FakeReport(), coverage_table(frame, 30))
+    lines = text.splitlines()
+    row = next(i for i, line in enumerate(lines) if line.startswith("nee_flag "))
+    assert lines[row].split()[-2:] == ["1", "0"]    # max 1, none outside
+    assert lines[row + 1].startswith("nee_flag: the verdict of the site's flag column(s), "
+                                     "0 = kept, 1 = rejected")
+
+
+class _FakeReport:
+    """A reader's report with nothing to say (format_check prints it and its warnings)."""
+    warnings = ()
+
+    def __str__(self):
+        return "source            tower.csv"
 
 
 def test_column_without_any_value_warns(tmp_path):

@@ -657,3 +657,23 @@ def test_events_hours_apart_within_an_outage_leave_no_nee_unfilled():
               "(interval starts) has no" in str(w.message)]
     assert len(pieces) == 2
     assert np.isfinite(result.annual[["gpp_nighttime", "gpp_daytime"]].to_numpy()).all()
+
+
+def test_warnings_of_process_site_config_name_the_callers_line(tmp_path):
+    """A FluxpartWarning names the line of the caller's code, through
+    `process_site_config` too: it named fluxpart/pipeline.py, the line where
+    `process_site_config` calls `process` (review43). A short bundle of the invented
+    example site gives a partial-year warning among others."""
+    import warnings
+
+    from bundles import make_bundle
+
+    from fluxpart.pipeline import process_site_config
+
+    config = make_bundle(tmp_path)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        process_site_config(config)
+    ours = [w for w in caught if issubclass(w.category, FluxpartWarning)]
+    assert any("partial year" in str(w.message) for w in ours)
+    assert {w.filename for w in ours} == {__file__}

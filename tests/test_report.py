@@ -746,6 +746,35 @@ def test_the_cumulative_legend_covers_no_curve_of_a_two_budget_year_record(folde
     assert legend.y0 >= 0
 
 
+def test_the_monthly_legend_lies_below_the_plotting_area(folder):
+    """The monthly sums' legend (five entries) lies below the axes and their date labels,
+    by matplotlib's own window extents: in the upper left it covered the first summer's
+    GPP peak of a two-year record (review43)."""
+    from matplotlib.font_manager import FontProperties
+
+    result = folder["result"]
+    written = Written(manifest={}, tables={"timeseries": result.timeseries,
+                                           "monthly": result.monthly,
+                                           "annual": result.annual})
+    drawing = figures.Drawing()
+    drawn = []
+    original = drawing.png
+    drawing.png = lambda figure: (drawn.append(figure), original(figure))[1]
+    with drawing.mpl.rc_context():
+        figures.figure_monthly(drawing, written)
+        rc = drawing.mpl.rcParams
+        # the date labels' height below the axes: tick length, pad and font [points]
+        font = FontProperties(size=rc["xtick.labelsize"]).get_size_in_points()
+        labels = rc["xtick.major.size"] + rc["xtick.major.pad"] + font
+    figure = drawn[0]
+    renderer = figure.canvas.get_renderer()
+    axis = figure.axes[0]
+    legend = axis.get_legend().get_window_extent(renderer)
+    plot = axis.get_window_extent(renderer)
+    assert legend.y1 <= plot.y0 - labels * figure.dpi / 72, (legend, plot, labels)
+    assert len(axis.get_legend().get_texts()) == 5
+    assert legend.y0 >= 0
+
 def test_annual_table_headings_name_a_budget_years_days():
     """`year` is the calendar year a budget year starts in (README, budget year); a July-June
     year's column was headed "2020" alone, which reads as January-December 2020 (review
@@ -1265,6 +1294,29 @@ def test_a_method_difference_rounded_to_zero_shows_no_minus_sign():
                                               summary).group(1))
     assert "GPP +0.0 %" in line and "Reco -1.2 %" in line and "-0.0" not in line
 
+
+def test_method_agreement_says_where_the_daytime_method_took_the_nighttime_e0():
+    """Where the daytime method's windows took the nighttime method's E0 (e0_source
+    "fallback"), their agreement is not that of two independent estimates: the card says
+    so, counting the period's windows (review43: only the warnings said it, beside a card
+    reading "agree"). Windows of another year are not counted; none shared, no clause."""
+    index = pd.date_range("2021-01-01", "2022-12-31 23:30", freq="30min")
+    annual = pd.DataFrame({"nee": [-100.0, -90.0], "methods_agree": [True, True],
+                           "gpp_relative_difference": [0.01, 0.01],
+                           "reco_relative_difference": [0.02, 0.02]},
+                          index=pd.Index([2021, 2022], name="year"))
+    centres = pd.to_datetime(["2021-03-01", "2021-06-01", "2021-09-01", "2022-06-01"])
+    daytime = pd.DataFrame({"window_centre": centres,
+                            "e0_source": ["fallback", "fallback", "pooled", "pooled"]})
+    written = report.Written(manifest={}, tables={
+        "timeseries": pd.DataFrame({"nee_filled": 1.0}, index=index), "annual": annual,
+        "parameters_daytime": daytime})
+    summary, _ = report._summary_card(written)
+    lines = [re.sub(r"<[^>]+>", "", text) for text in
+             re.findall(r"Method agreement:</strong>(.*?)</li>", summary)]
+    assert lines[0].endswith("; not independent: the daytime method took the nighttime "
+                             "method's E0 in 2 of 3 light-response windows.")
+    assert "not independent" not in lines[1] and lines[1].endswith("Reco +2.0 %).")
 
 def test_methods_name_the_declared_events_only_where_the_result_has_them():
     """The report draws only what was written: a result's config with ``events`` (0.22.0)

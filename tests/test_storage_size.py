@@ -65,8 +65,8 @@ def test_a_storage_column_in_another_unit_is_named_at_a_short_canopy_only():
         assert oversized_storage(true * factor, stamps, 30, "short") is None
     factor = 1800 / (3 * AIR_MOLES_PER_M3)
     assert factor == pytest.approx(14.2, abs=0.1)
-    text = oversized_storage(true * factor, stamps, 30, "short", {"storage": "Sc"})
-    assert text is not None and "'Sc'" in text and "unit" in text
+    text = oversized_storage(true * factor, stamps, 30, "short", {"storage": "co2_store"})
+    assert text is not None and "'co2_store'" in text and "unit" in text
     rise = float(text.split("a rise of ")[1].split(" ")[0])
     assert rise > MAX_COLUMN_RISE
     assert rise == pytest.approx(daily_store_swing(true * factor, stamps, 30)
@@ -81,7 +81,7 @@ def _maize_copy(tmp_path, factor):
     for path in folder.glob("*.dat"):
         lines = path.read_text(encoding="latin-1").splitlines(keepends=True)
         header = lines[1].rstrip("\r\n").split(";")
-        column = header.index("Sc_profile")
+        column = header.index("co2_store")
         for number, line in enumerate(lines[3:], start=3):
             cells = line.rstrip("\r\n").split(";")
             value = float(cells[column].replace(",", "."))
@@ -105,4 +105,4 @@ def test_the_maize_example_storage_through_the_reader(tmp_path, factor, named):
     texts = [text for text in report.warnings if "too large for the air" in text]
     assert bool(texts) is named
     if named:
-        assert texts[0].startswith("storage: the storage column ('Sc_profile')")
+        assert texts[0].startswith("storage: the storage column ('co2_store')")

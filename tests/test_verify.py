@@ -378,6 +378,14 @@ def test_changed_code_fingerprint_is_named_as_likely_cause(copy, monkeypatch, ca
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
     assert "likely cause: the product's code differs" in out
+    # a table edited without resealing is named as the cause: changed code does not
+    # explain a file whose SHA-256 is not the recorded one (review43: the code alone was
+    # named, which an auditor could read as an all-clear for the edit)
+    _set_value(copy / "out", "daily", "nee", lambda v: v + 1.0, reseal=False)
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert "likely cause: daily changed after it was written" in out
+    assert "which no code change explains; the product's code differs too" in out
 
 
 def test_demo_result_is_regenerated_and_verified(tmp_path):
@@ -670,6 +678,11 @@ def test_identity_of_several_input_files_does_not_give_the_first_the_lists_hash(
         "files": [{"path": f"../data/{year}/01.csv", "sha256": own["a.csv"]}
                   for year in (2022, 2023)]}}}
     assert "input ../data/2022/01.csv and 1 more file(s)" in result_identity(yearly)
+    # a demo folder names its data's seed beside the run's (review43: `demo --seed 1` read
+    # "seed 0; the invented demo site")
+    demo = {"seed": 0, "provenance": {"demo": {"seed": 1, "variant": "c3"}}}
+    assert result_identity(demo).startswith("seed 0; the invented demo site (data seed 1, "
+                                            "variant c3)")
 
 
 def test_a_difference_column_rounds_with_its_operands():
