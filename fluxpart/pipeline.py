@@ -30,8 +30,6 @@ settings to the stage functions and hands each stage's record to the next:
 from __future__ import annotations
 
 import logging
-import os
-import sys
 import warnings as _warnings
 from pathlib import Path
 
@@ -53,7 +51,7 @@ from . import (
     ustar_stage,
 )
 from .config import Config
-from .errors import ConfigError, FluxpartWarning, InputFileError
+from .errors import ConfigError, FluxpartWarning, InputFileError, caller_stacklevel
 from .fingerprint import load_blas_libraries
 from .result import Result, load  # noqa: F401  (re-exported: fluxpart.pipeline.load)
 from .site import Site
@@ -151,17 +149,6 @@ def stage_count(config: Config) -> int:
     return 3 + 1 + scenarios
 
 
-def _caller_level() -> int:
-    """The `stacklevel` of :func:`warnings.warn` in :func:`process` that names the first
-    frame outside the package: the user's line, also where the call came through
-    :func:`process_site_config` (which was named before, review43)."""
-    package = str(Path(__file__).resolve().parent) + os.sep
-    frame, level = sys._getframe(1), 1
-    while frame is not None and str(Path(frame.f_code.co_filename).resolve()).startswith(
-            package):
-        frame, level = frame.f_back, level + 1
-    return level
-
 def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
             provenance: dict | None = None, progress=None) -> Result:
     """Turn a canonical site record into gap-filled, partitioned fluxes and budgets.
@@ -254,7 +241,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     warnings.extend(budget_warnings.budget_year_warnings(
         assessed.annual, assessed.timeseries, year_keys, interval, config,
         list(result_tables.BUDGET_FLUXES.values()), assessed.unfitted))
-    level = _caller_level()
+    level = caller_stacklevel()
     for text in warnings:
         _warnings.warn(text, FluxpartWarning, stacklevel=level)
     night, day = central.outcomes["central"].night, central.outcomes["central"].day
