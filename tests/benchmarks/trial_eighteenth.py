@@ -98,7 +98,6 @@ constant or form of this script with no source):
 """
 from __future__ import annotations
 
-import argparse
 import sys
 import time
 from dataclasses import dataclass
@@ -111,14 +110,19 @@ from scipy.signal import lfilter
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
     FLUXES,
-    TRUTH_OF,
+    budget_years,
     check_and_run,
+    chosen_variant,
     finish,
     flux_scores,
     fmt,
     misses,
+    night_day_errors,
     print_flux_table,
+    processing_text,
+    run_warnings,
     site_toml,
+    trial_parser,
 )
 
 GC_PER_UMOL = 12.011e-6  # g C per umol (standard atomic weight of carbon (m))
@@ -284,13 +288,6 @@ def weather(site, idx, rng):
         cloud[d] = cloud[d - 1] if d and keep[d] else fresh[d]
     tau = np.exp(np.log(6.0 + 8.0 * monsoon) + 0.6 * rng.normal(size=n_days))
     trans = 1 / (1 + 0.75 * (1 - 0.85) * tau)
-    logit = np.log(np.clip(cloud, 0.01, 0.99) / (1 - np.clip(cloud, 0.01, 0.99)))
-    shade = 1 / (1 + np.exp(-(logit[day] + 1.4 * ar1(rng.normal(size=n), 0.85))))
-    turbidity = np.exp(0.04 * ar1(rng.normal(size=n_days), 0.8))[day]
-    rg = haurwitz(cz) * turbidity * (1 - shade * (1 - trans[day]))
-    rg = np.minimum(rg, 0.95 * top)
-    kt = np.where(top > 10, rg / np.maximum(top, 1e-9), 0.0)
-    kd = orgill_hollands(kt)
     # rain
     clock = idx.hour.to_numpy() + idx.minute.to_numpy() / 60
     if k == "K":  # convective afternoon showers in the monsoon, a little rain in the dry season
@@ -303,12 +300,21 @@ def weather(site, idx, rng):
         dur = rng.integers(1, 9, n_days)
     mm_d = np.where(rain_d, rng.gamma(0.9, 7.0 + 8.0 * monsoon), 0.0)
     raining = rain_d[day] & (((clock - start_h[day]) % 24) < dur[day])
+    logit = np.log(np.clip(cloud, 0.01, 0.99) / (1 - np.clip(cloud, 0.01, 0.99)))
+    shade = 1 / (1 + np.exp(-(logit[day] + 1.4 * ar1(rng.normal(size=n), 0.85))))
+    shade = np.where(raining, np.maximum(shade, 0.95), shade)   # rain falls from cloud
+    turbidity = np.exp(0.04 * ar1(rng.normal(size=n_days), 0.8))[day]
+    rg = haurwitz(cz) * turbidity * (1 - shade * (1 - trans[day]))
+    rg = np.minimum(rg, 0.95 * top)
+    kt = np.where(top > 10, rg / np.maximum(top, 1e-9), 0.0)
+    kd = orgill_hollands(kt)
     # daily air temperature: mean, range, minimum and maximum
     tmean = (site.t_mean + site.t_amp * season + 2.4 * ar1(rng.normal(size=n_days), 0.72)
              - 1.5 * (cloud - 0.5))
     dtr = site.dtr * (1 - 0.7 * cloud * (1 - trans))
     tmin, tmax = tmean - 0.45 * dtr, tmean + 0.55 * dtr
     air = diurnal_course(site, solar, day, doy_d, tmin, tmax)
+    air = air - 1.5 * raining   # rain-cooled air (invented size)
     # humidity: a dew point below the day's minimum
     dep = np.full(n_days, site.dew_dep)
     if k == "K":
@@ -709,20 +715,12 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
 # ----------------------------------------------------------------------------- scoring
 def score(site: Site, truth: pd.DataFrame, out: Path, check):
     """Score every complete budget year of ``annual.parquet`` against the truth."""
-    annual = pd.read_parquet(out / "annual.parquet")
-    series = pd.read_parquet(out / "timeseries.parquet").set_index("time")
     factor = site.step * 60 * GC_PER_UMOL
     rows = []
-    for _, a in annual.iterrows():
-        start, end = pd.Timestamp(a["period_start"]), pd.Timestamp(a["period_end"])
-        part = truth[(truth.index >= start) & (truth.index < end)]
-        row = {"site_year": f"{site.key}:{a['year']}", "run": site.key, "year": a["year"],
-               "complete": bool(a["complete"]), "check_rc": check.returncode,
-               "period": f"{start:%Y-%m-%d}..{end:%Y-%m-%d}"}
-        if part.empty or not row["complete"]:
+    for a, part, sub, row in budget_years(out, truth, site.key, check):
+        if sub is None:
             rows.append(row)
             continue
-        sub = series.reindex(part.index)
         row.update(flux_scores(a, part, factor))
         night = part.night.to_numpy().astype(bool)
         found = float(np.nanmedian(sub["ustar_threshold"].to_numpy()[night]))
@@ -743,10 +741,7 @@ def score(site: Site, truth: pd.DataFrame, out: Path, check):
             "err_fill_rain": factor * np.nansum((est - true)[~kept & rain & ~out_rec]),
             "err_fill_outage": factor * np.nansum((est - true)[~kept & out_rec]),
             "unfilled": int(np.isnan(est).sum())})
-        for f in FLUXES[1:]:
-            diff = sub[f].to_numpy() - part[TRUTH_OF[f]].to_numpy()
-            row[f + "_err_night"] = factor * np.nansum(diff[night])
-            row[f + "_err_day"] = factor * np.nansum(diff[~night])
+        row.update(night_day_errors(sub, part, night, factor))
         rows.append(row)
     return rows
 
@@ -771,42 +766,22 @@ def print_row(row):
 
 
 def main(argv=None):
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--out", type=Path, default=Path("/tmp/fluxpart-trial18"))
-    parser.add_argument("--runs", default=",".join(SITES))
-    parser.add_argument("--variant", default="",
-                        help=f"comma-separated diagnosis switches: {', '.join(VARIANTS)}")
-    parser.add_argument("--planted-ustar", action="store_true",
-                        help="run with the planted u* threshold (ustar_method = fixed)")
-    parser.add_argument("--processing", default="",
-                        help="extra [processing] lines for every site's TOML")
-    parser.add_argument("--seed-offset", type=int, default=0,
-                        help="draw the weather, noise and gaps again (0: the documented draw)")
+    parser = trial_parser(__doc__.splitlines()[0], "/tmp/fluxpart-trial18", VARIANTS)
     options = parser.parse_args(argv)
-    variant = frozenset(v for v in options.variant.split(",") if v)
-    if variant - set(VARIANTS):
-        parser.error(f"unknown --variant {sorted(variant - set(VARIANTS))}")
+    variant = chosen_variant(parser, options, VARIANTS)
     options.out.mkdir(parents=True, exist_ok=True)
     rows = []
     t0 = time.perf_counter()
-    for key in options.runs.split(","):
+    for key in (options.runs or ",".join(SITES)).split(","):
         site = SITES[key]
         data, truth = simulate(site, variant, options.seed_offset)
-        processing = options.processing.replace("\\n", "\n")
-        if options.planted_ustar:
-            thr = float(np.median(truth.thr.to_numpy()[truth.night.to_numpy()]))
-            processing += f'\nustar_method = "fixed"\nustar_threshold = {thr:.4f}\n'
-        processing = processing + ("\n" if processing and not processing.endswith("\n") else "")
         folder = options.out / f"site_{key}"
-        toml_name = write_site(site, data, folder, processing)
+        toml_name = write_site(site, data, folder, processing_text(options, truth))
         print(f"\n   {key} planted: {truth.attrs['note']}")
         check, run = check_and_run(toml_name, folder, "out", f"{key} {site.name}")
         if run is None:
             continue
-        warns = [ln for ln in run.stdout.splitlines() + run.stderr.splitlines() if ln.strip()]
-        print(f"   run: {len(warns)} lines of warnings ({time.perf_counter() - t0:.0f} s)")
-        for ln in warns[:14]:
-            print(f"     {ln[:230]}")
+        warns = run_warnings(run, time.perf_counter() - t0)
         for row in score(site, truth, folder / "out", check):
             row["warnings"] = warns
             print_row(row)
