@@ -63,7 +63,9 @@ constant or form of this script with no source):
   the day before with chance 0.5; invented) and a daily cloud optical depth tau (lognormal,
   invented); the cloud's transmission of the two-stream approximation for conservative
   scattering, 1 / (1 + 0.75 (1 - g) tau) with asymmetry g = 0.85 (m); the share of each
-  record the sun is behind cloud wandering about N (a logistic AR(1); invented).
+  record the sun is behind cloud wandering about N (a logistic AR(1); invented); rain on
+  cloudier days (at K short afternoon showers in the monsoon), the sun behind cloud and the
+  air 1.5 K cooler while it rains (invented).
 - diffuse fraction: Orgill and Hollands (1977) of the clearness index (m).
 - air temperature: daily minimum at sunrise, maximum at 14:00 solar time, a sine rise and
   fall to sunset, a square-root decline through the night to the next sunrise, the sunset
