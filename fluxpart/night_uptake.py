@@ -7,7 +7,11 @@ premise fails: plants with crassulacean acid metabolism (CAM: agave, pineapple, 
 open their stomata at night and fix CO2 then (Osmond 1978), and an open-path analyser
 heated above the air in cold weather reports an apparent uptake (Burba et al. 2008).
 The nighttime fit then fails (E0 out of bounds) or, worse, returns a respiration that is
-not one. NEE gap filling and the NEE budget do not rest on the premise.
+not one. NEE gap filling does not rest on the premise; the NEE budget does not where
+plants take the CO2 up, but a heated analyser's apparent uptake is in the measured NEE
+itself, by day too, and biases the budget (an invented steppe whose self-heating correction
+left 15 % of the heating term at -15 deg C: NEE -28 g C m-2 a year, the interval +-5;
+trial_eighteenth.py), which the note says.
 
 :func:`dark_uptake_months` tests each month with a one-sided sign test on the dark
 records' measured NEE; :func:`uptake_note` words the months that fail;
@@ -146,7 +150,10 @@ def uptake_note(months: pd.DataFrame, column: str = "nee") -> str | None:
         "metabolism (agave, pineapple, opuntia) fix it at night, or an open-path analyser "
         "heated above cold air reports an apparent uptake, or the column holds another "
         "quantity. Both partitioning methods read dark NEE as respiration, so their GPP and "
-        "Reco are not valid here; the NEE gap filling and budget do not rest on it (where a "
+        "Reco are not valid here. The NEE gap filling does not rest on it, and the NEE "
+        "budget stands where plants take the CO2 up; where the analyser's heat or another "
+        "quantity causes it, the measured NEE itself is biased, by day too (correct the "
+        "heating before reading: Burba et al. 2008), and so is the budget (where a "
         "partitioning fit fails on these records, [processing] e0_fallback lets the run give "
         "them)")
 

@@ -81,6 +81,10 @@ def test_cam_uptake_in_the_dark_is_named():
     assert note.startswith("'Fc': the measured NEE of the dark records")
     assert "2 of 2 months (2021-03, 2021-04" in note
     assert "crassulacean acid metabolism" in note
+    # the NEE budget stands for plants, not for a heated open-path analyser's apparent
+    # uptake, which is in the measured NEE itself (Burba et al. 2008)
+    assert "budget stands where plants take the CO2 up" in note
+    assert "the measured NEE itself is biased, by day too" in note
 
 
 def test_respiration_near_zero_under_a_heavy_tailed_error_is_not_named():

@@ -1,8 +1,9 @@
 """Scoring shared by the independent known-truth trials (``trial_third.py`` to
 ``trial_eleventh.py``).
 
-Only the scoring is shared: each trial keeps its own weather, flux physics and file layouts,
-so that the trials stay independent of each other and of ``fluxpart.scenarios``.
+Only the scoring is shared (and, since ``trial_eighteenth.py``, the command line and the
+loop over a run's budget years): each trial keeps its own weather, flux physics and file
+layouts, so that the trials stay independent of each other and of ``fluxpart.scenarios``.
 
 The targets are those of issue 11: a 95 % interval that holds the truth, |annual NEE error|
 <= 15 g C m-2, nighttime GPP and Reco within 5 %, daytime within 8 %, the u* threshold within
@@ -222,3 +223,81 @@ canopy = "{site.canopy}"
 seed = 0
 year_start = "{site.year_start}"
 {processing}"""
+
+
+def trial_parser(description, default_out, variants):
+    """The command line every trial shares: ``--out``, ``--runs`` (default: every site of
+    the caller, filled in by the caller), ``--variant`` (from `variants`),
+    ``--planted-ustar``, ``--processing`` and ``--seed-offset``."""
+    import argparse
+
+    parser = argparse.ArgumentParser(description=description)
+    parser.add_argument("--out", type=Path, default=Path(default_out))
+    parser.add_argument("--runs", default="")
+    parser.add_argument("--variant", default="",
+                        help=f"comma-separated diagnosis switches: {', '.join(variants)}")
+    parser.add_argument("--planted-ustar", action="store_true",
+                        help="run with the planted u* threshold (ustar_method = fixed)")
+    parser.add_argument("--processing", default="",
+                        help="extra [processing] lines for every site's TOML")
+    parser.add_argument("--seed-offset", type=int, default=0,
+                        help="draw the weather, noise and gaps again (0: the documented draw)")
+    return parser
+
+
+def chosen_variant(parser, options, variants) -> frozenset:
+    """The ``--variant`` switches as a set; an unknown one is a parser error."""
+    variant = frozenset(v for v in options.variant.split(",") if v)
+    if variant - set(variants):
+        parser.error(f"unknown --variant {sorted(variant - set(variants))}")
+    return variant
+
+
+def processing_text(options, truth) -> str:
+    """``--processing`` lines plus, with ``--planted-ustar``, the fixed threshold: the
+    median over the night records (`truth` columns ``night`` and ``thr``) of the planted
+    record thresholds."""
+    processing = options.processing.replace("\\n", "\n")
+    if options.planted_ustar:
+        thr = float(np.median(truth.thr.to_numpy()[truth.night.to_numpy()]))
+        processing += f'\nustar_method = "fixed"\nustar_threshold = {thr:.4f}\n'
+    return processing + ("\n" if processing and not processing.endswith("\n") else "")
+
+
+def run_warnings(run, seconds, shown=14):
+    """Print the first `shown` non-empty lines a run wrote; return all of them."""
+    warns = [ln for ln in run.stdout.splitlines() + run.stderr.splitlines() if ln.strip()]
+    print(f"   run: {len(warns)} lines of warnings ({seconds:.0f} s)")
+    for ln in warns[:shown]:
+        print(f"     {ln[:230]}")
+    return warns
+
+
+def budget_years(out, truth, key, check):
+    """Each budget year of a run's ``annual.parquet``: its row, the truth of its records,
+    the run's time series on them (None where the year is incomplete or has no truth) and
+    the score row begun with its site-year, period and completeness."""
+    import pandas as pd
+
+    annual = pd.read_parquet(Path(out) / "annual.parquet")
+    series = pd.read_parquet(Path(out) / "timeseries.parquet").set_index("time")
+    for _, a in annual.iterrows():
+        start, end = pd.Timestamp(a["period_start"]), pd.Timestamp(a["period_end"])
+        part = truth[(truth.index >= start) & (truth.index < end)]
+        row = {"site_year": f"{key}:{a['year']}", "run": key, "year": a["year"],
+               "complete": bool(a["complete"]), "check_rc": check.returncode,
+               "period": f"{start:%Y-%m-%d}..{end:%Y-%m-%d}"}
+        usable = not part.empty and row["complete"]
+        yield a, part, (series.reindex(part.index) if usable else None), row
+
+
+def night_day_errors(series, truth_part, night, factor) -> dict:
+    """Each partitioned flux's error [g C m-2] summed over the night records and over the
+    day records (`night` a boolean mask of the records) as ``<flux>_err_night`` and
+    ``<flux>_err_day``."""
+    out = {}
+    for f in FLUXES[1:]:
+        diff = series[f].to_numpy() - truth_part[TRUTH_OF[f]].to_numpy()
+        out[f + "_err_night"] = factor * np.nansum(diff[night])
+        out[f + "_err_day"] = factor * np.nansum(diff[~night])
+    return out
