@@ -73,6 +73,7 @@ from .errors import (
     TimestampError,
     UnitError,
 )
+from .fixed_width import fused_header_names, run_together_field
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .site import Site
@@ -2401,7 +2402,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
         return _read_text(path, "\n".join(text_lines[:number]) + "\n", delimiter,
                           rows_before_header, rows_after_header, warnings)
     first_line = rows_before_header + rows_after_header + 2
-    raw = _trailing_fields(path, raw, first_line, delimiter)
+    raw = _trailing_fields(path, raw, first_line, delimiter, *_header_and_first(
+        text, rows_before_header, first_line, delimiter))
     blank = _blank_rows(raw)
     lines = _record_lines(text, first_line, len(raw), delimiter)
     raw = raw.loc[~blank].reset_index(drop=True)
@@ -2614,7 +2616,8 @@ def _named_width(header: list) -> int:
 
 
 def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int,
-                     delimiter: str = ",") -> pd.DataFrame:
+                     delimiter: str = ",", header_line: str = "",
+                     data_line: str = "") -> pd.DataFrame:
     """Undo the parser's row index taken from data lines with more fields than the header.
 
     When the first data line has k fields more than the header, the parser reads the
@@ -2669,12 +2672,35 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int,
                 f"input file {str(path)!r}: the header is one cell holding "
                 f"{setting_text(separator)} and the data lines split at their commas: set "
                 f"[input] delimiter = {setting_text(separator)}")
+        fused = (fused_header_names(header_line, data_line)
+                 if delimiter == _WHITESPACE and data_line else [])
+        if fused:
+            # names that fill their fixed width touch (layouts35: "is a column name
+            # missing?")
+            raise InputFileError(
+                f"input file {str(path)!r}: line {int(filled[0]) + first_line} has "
+                f"{width + extra} fields where the header has {width}: the header's "
+                f"{_names(fused, 3)} stand(s) over {width + extra - width + len(fused)} "
+                "columns of the records, names run together (fixed-width columns whose "
+                "names fill their width); put a blank between the names in a copy of the "
+                "file, or save it with a delimiter (\",\", \";\" or a tab)")
         raise InputFileError(
             f"input file {str(path)!r}: line {int(filled[0]) + first_line} has "
             f"{width + extra} fields where the header has {width}; {filled.size} such "
             "line(s) hold values beyond the last named column. Is a column name missing in "
             "the header, or is [input] delimiter wrong? Correct a copy of the file")
     return pd.DataFrame(dict(zip(raw.columns, cells[:width], strict=True)))
+
+
+def _header_and_first(text: str, rows_before_header: int, first_line: int,
+                      delimiter: str) -> tuple[str, str]:
+    """The header line and the first record line of a blank-separated file (else two
+    empty strings: only :func:`fixed_width.fused_header_names` reads them)."""
+    if delimiter != _WHITESPACE:
+        return "", ""
+    lines = text.splitlines()[:first_line]
+    return (lines[rows_before_header] if len(lines) > rows_before_header else "",
+            lines[first_line - 1] if len(lines) >= first_line else "")
 
 
 def _record_lines(text: str, first_line: int, count: int, delimiter: str) -> np.ndarray:
@@ -2888,6 +2914,17 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
                  f"({_shown_line(text_lines[lines[row] - 1])!r}) has "
                  f"{_field_count(text_lines[lines[row] - 1], delimiter)} fields where the "
                  f"header has {width}")
+        joined = (run_together_field(text_lines[lines[row] - 1])
+                  if delimiter == _WHITESPACE else None)
+        if joined:
+            # fixed-width columns whose values fill their width touch (layouts35: named
+            # an empty value or a record cut short)
+            raise InputFileError(
+                f"{where}: its field {joined!r} is two values run together; {len(inner)} "
+                "such line(s) before the last: the file's columns have fixed widths and a "
+                "value that fills its width (a minus sign, a missing code) touches the next "
+                "one, so blanks cannot split them; save the file with a delimiter (\",\", "
+                "\";\" or a tab) in a copy of the file")
         if delimiter == _WHITESPACE:
             # blanks collapse: an empty value leaves no field and moves the values after
             # it one column left (layouts25: the fix named was "write missing values as

@@ -1,0 +1,121 @@
+"""Layouts of the layouts35 round: clocks stated above the header, fixed-width columns.
+
+Outside facts, each named beside its check: ISO 8601-1:2019 writes a clock's offset from
+UTC as ±hh, ±hhmm or ±hh:mm, positive east of Greenwich, so a clock "1 h ahead of UTC"
+is UTC+1 (m); zones keep offsets of whole hours or of :30 and :45 (IANA time zone
+database (m)), so "clock offset: -00:03" is a clock's drift, no zone; fixed-width text
+tables (FORTRAN formatted output, logger exports) leave no blank between a value that
+fills its field and the next (common practice). Everything else is invented known truth:
+the records as written.
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.errors import InputFileError, TimestampError
+from fluxpart.fixed_width import fused_header_names, run_together_field
+from fluxpart.io import read_table
+from fluxpart.site import Site
+from fluxpart.stamp_places import stated_offset
+
+SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
+MAPPING = {"nee": "fc", "rg": "sw", "tair": "ta", "vpd": "vpd", "ustar": "us"}
+
+
+def _records(count=48 * 10):
+    """Invented half-hourly records of 1-10 June 2021 (end stamps, UTC+1)."""
+    ends = pd.date_range("2021-06-01 00:30", periods=count, freq="30min")
+    day = np.sin((ends.hour + ends.minute / 60 - 6) / 12 * np.pi)
+    rng = np.random.default_rng(35)
+    return pd.DataFrame({
+        "stamp": ends.strftime("%Y%m%d%H%M"),
+        "fc": (3 - 12 * np.clip(day, 0, None) + rng.normal(0, 1, count)).round(3),
+        "sw": (np.clip(800 * day, 0, None) + 1.0).round(1),
+        "ta": (15 + 6 * day).round(2), "vpd": (0.8 + 0.6 * np.clip(day, 0, None)).round(3),
+        "us": (0.3 + 0.1 * rng.random(count)).round(3)}), ends
+
+
+def _read(path, **options):
+    return read_table(path, columns=MAPPING, time_column="stamp", time_format="%Y%m%d%H%M",
+                      time_marks="end", units={"vpd": "kPa"}, site=SITE, **options)
+
+
+@pytest.mark.parametrize("line, offset", [
+    # ISO 8601 offsets after a clock's offset key: read since layouts35 (was None)
+    ("Logger clock offset: UTC+02:00", 2.0), ("clock_offset=+02:00", 2.0),
+    ("Time-zone offset: -0500", -5.0), ("utc_offset_minutes=120", 2.0),
+    ("Logger clock set to UTC+2", 2.0), ("All values in UTC+2", 2.0), ("Data in UTC", 0.0),
+    ("Hours from UTC: 2", 2.0), ("Date & time (UTC+2)", 2.0),
+    # an offset counted from UTC in words, read as UTC (0) before layouts35
+    ("Time zone (hours from UTC): 2", 2.0), ("Time zone: 1 h ahead of UTC", 1.0),
+    ("Time zone: 5 hours behind GMT", -5.0), ("Time zone: 2 h from UTC", None),
+    # a clock's drift is no zone (IANA: offsets of :00, :30, :45)
+    ("Clock offset: +12 s", None), ("Clock offset: -00:03", None),
+    # kept: a date beside UTC, a plain clock key
+    ("Time zone: UTC (exported 2021-06-01)", 0.0), ("Clock: UTC+2", 2.0),
+])
+def test_clocks_stated_above_the_header_are_read_as_iso_8601_offsets(line, offset):
+    assert stated_offset(line) == offset
+
+
+def test_a_clock_offset_line_other_than_the_site_is_refused_naming_both(tmp_path):
+    """Before: "Logger clock offset: UTC+02:00" above stamps read as UTC+1 was read
+    without a word; now both readings are named."""
+    frame, _ = _records()
+    path = tmp_path / "t.csv"
+    path.write_text("Quillmoor tower\nLogger clock offset: UTC+02:00\n"
+                    + frame.to_csv(index=False))
+    with pytest.raises(TimestampError, match=r"UTC\+2.*UTC\+1.*1 hour"):
+        _read(path, rows_before_header=2)
+
+
+def test_an_offset_counted_from_utc_in_words_is_not_read_as_utc(tmp_path):
+    """Before: "Time zone (hours from UTC): 1" was read as UTC and the file, written in
+    the site's UTC+1, refused ("set time_zone = UTC"); now it reads, record for record."""
+    frame, ends = _records()
+    path = tmp_path / "t.csv"
+    path.write_text("Quillmoor tower\nTime zone (hours from UTC): 1\n"
+                    + frame.to_csv(index=False))
+    read, _ = _read(path, rows_before_header=2)
+    starts = ends - pd.Timedelta("30min")
+    assert read.index.equals(pd.DatetimeIndex(starts, name="time").as_unit(read.index.unit))
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["fc"].to_numpy())
+
+
+def _fixed(frame, widths):
+    lines = ["".join(str(c).rjust(w) for c, w in zip(frame.columns, widths, strict=True))]
+    lines += ["".join(str(v).rjust(w) for v, w in zip(row, widths, strict=True))
+              for row in frame.astype(str).to_numpy()]
+    return "\n".join(lines) + "\n"
+
+
+def test_values_that_fill_a_fixed_width_are_named_as_run_together(tmp_path):
+    """Before: '202106010130-9999.0' (a missing code filling its 7-character field) was
+    named "an empty value leaves no field ... or a record cut short"."""
+    frame, _ = _records()
+    frame["fc"] = frame["fc"].map("{:.3f}".format)
+    frame.loc[2, "fc"] = "-9999.0"
+    path = tmp_path / "t.dat"
+    path.write_text(_fixed(frame, [12, 7, 7, 7, 7, 7]))
+    with pytest.raises(InputFileError, match=r"line 4 .*'202106010130-9999\.0' is two "
+                                             r"values run together.*fixed widths"):
+        _read(path, delimiter="whitespace", missing=[-9999])
+
+
+def test_names_that_fill_a_fixed_width_are_named_as_run_together(tmp_path):
+    """Before: "line 2 has 7 fields where the header has 6 ... Is a column name missing
+    in the header?"; now the cell holding two names is named."""
+    frame, _ = _records()
+    frame = frame.rename(columns={"sw": "sw_in_wm2"})
+    path = tmp_path / "t.dat"
+    path.write_text(_fixed(frame, [14, 9, 9, 9, 9, 9]))
+    with pytest.raises(InputFileError, match=r"'fcsw_in_wm2' stand\(s\) over 2 columns"):
+        _read(path, delimiter="whitespace")
+
+
+def test_dates_and_aligned_headers_are_not_taken_for_fields_run_together():
+    assert run_together_field("2021-06-01 00:30 -3.25 01.06.2021 2021.06.01 1e-5") is None
+    assert run_together_field("0.5161013.2 1") == "0.5161013.2"
+    # a header one name short over aligned columns: no cell spans two fields
+    assert fused_header_names("   stamp      fc", "  202106010030   0.5  1.2") == []
