@@ -6,7 +6,8 @@ between every two fields; where a value fills its width (a minus sign, a missing
 such as -9999.0, a large Rg) or a name fills its width, it touches its neighbour and
 the two are read as one field. Such a line was named a record with an empty value or
 cut short, and such a header a header lacking a name (round layouts35). The functions
-here name the fields that run together; the reader refuses with them.
+here name the fields that run together, for the reader's refusals, and cut the lines of
+a file at the widths ``[input] column_widths`` declares, which reads such a file.
 
 References
 ----------
@@ -18,7 +19,9 @@ from __future__ import annotations
 
 import re
 
-__all__ = ["fused_header_names", "run_together_field"]
+from .errors import InputFileError
+
+__all__ = ["delimited", "fused_header_names", "run_together_field"]
 
 #: One number followed at once by a signed one ("202101010200-9999.0", "0.516-7.46"),
 #: or a number with two decimal points ("0.5161013.2"): two numbers run together
@@ -78,3 +81,60 @@ def fused_header_names(header_line: str, data_line: str) -> list[str]:
     if sum(max(count, 1) for _, count in cells) != len(fields):
         return []
     return [cell for cell, count in cells if count >= 2]
+
+
+def delimited(path, text: str, widths: tuple, rows_before_header: int) -> str:
+    """A fixed-width table's text with its fields cut at the declared widths, tab-joined.
+
+    Parameters
+    ----------
+    path : str or path-like
+        The file, for messages.
+    text : str
+        The file's text.
+    widths : tuple of int
+        ``[input] column_widths``: characters of each column, left to right; text beyond
+        their sum is one more field (the reader names a line holding more fields than
+        the header).
+    rows_before_header : int
+        Lines above the header (a title, metadata), left as they are.
+
+    Returns
+    -------
+    str
+        The same lines, each cut into fields with blanks stripped, joined by tabs; a
+        line ending inside the k-th column holds k fields, so a record cut short stays
+        short (a last value left blank needs the line's trailing blanks); blank lines
+        stay blank.
+
+    Raises
+    ------
+    InputFileError
+        Where a line below the header block holds a tab, which no fixed-width column
+        holds and which would split a field.
+
+    References
+    ----------
+    Common practice of fixed-width exports (module docstring).
+    """
+    edges = [0]
+    for width in widths:
+        edges.append(edges[-1] + width)
+    lines = text.splitlines(keepends=True)
+    cut = lines[:rows_before_header]
+    for number, line in enumerate(lines[rows_before_header:], start=rows_before_header + 1):
+        body = line.rstrip("\r\n")
+        if "\t" in body:
+            raise InputFileError(
+                f"input file {str(path)!r}: line {number} holds a tab, which a file of [input] column_widths (fixed "
+                "widths) does not: set [input] delimiter = \"\\t\" if tabs separate its "
+                "fields, or replace the tabs by blanks in a copy of the file")
+        if not body.strip():
+            cut.append(line)
+            continue
+        cells = [body[start:end].strip() for start, end in zip(edges[:-1], edges[1:],
+                                                                strict=True)
+                 if start < len(body)]
+        rest = body[edges[-1]:].strip()
+        cut.append("\t".join([*cells, rest] if rest else cells) + line[len(body):])
+    return "".join(cut)

@@ -73,7 +73,7 @@ from .errors import (
     TimestampError,
     UnitError,
 )
-from .fixed_width import fused_header_names, run_together_field
+from .fixed_width import delimited, fused_header_names, run_together_field
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .site import Site
@@ -146,7 +146,8 @@ _DEFAULT_FLAG_ACCEPT = (0,)
 _TOP_LEVEL_KEYS = ("input", "processing", "site")
 _SITE_KEYS = ("canopy", "latitude", "longitude", "name", "utc_offset")
 _SITE_REQUIRED = ("name", "latitude", "longitude", "utc_offset")
-_INPUT_KEYS = ("accept_units", "columns", "decimal", "delimiter", "encoding", "flag_accept",
+_INPUT_KEYS = ("accept_units", "column_widths", "columns", "decimal", "delimiter", "encoding",
+               "flag_accept",
                "interval_minutes", "missing", "missing_by_variable", "path",
                "rows_after_header",
                "rows_before_header", "time_column", "time_format", "time_marks", "time_zone",
@@ -470,6 +471,9 @@ class SiteConfig:
     missing_by_variable : dict
         Canonical name -> codes meaning "no value" in that variable's column only, beside
         `missing` (``[input.missing_by_variable]``).
+    column_widths : tuple of int
+        Characters of each column of a fixed-width file (``[input] column_widths``), or
+        () for a delimited one.
     """
 
     site: Site
@@ -492,6 +496,7 @@ class SiteConfig:
     flag_accept: tuple = _DEFAULT_FLAG_ACCEPT
     accept_units: tuple = ()
     missing_by_variable: dict = field(default_factory=dict)
+    column_widths: tuple = ()
 
     @property
     def input_path(self) -> Path:
@@ -542,7 +547,8 @@ class SiteConfig:
                 "rows_after_header": self.rows_after_header, "time_zone": self.time_zone,
                 "flag_accept": self.flag_accept, "accept_units": self.accept_units,
                 "site": self.site} | ({"missing_by_variable": dict(self.missing_by_variable)}
-                                      if self.missing_by_variable else {})
+                                      if self.missing_by_variable else {}) | (
+            {"column_widths": self.column_widths} if self.column_widths else {})
 
 
 def read_config(path) -> tuple[pd.DataFrame, Site]:
@@ -656,6 +662,8 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
     if time_zone is not None:
         check_time_zone(time_zone, site.utc_offset)
     delimiter = _check_delimiter(input_table.get("delimiter", ","))
+    column_widths = _check_column_widths(input_table.get("column_widths"),
+                                         input_table.get("delimiter"))
     return SiteConfig(
         site=site,
         config_path=path,
@@ -681,6 +689,7 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
         accept_units=_check_accept_units(input_table.get("accept_units", [])),
         missing_by_variable=_check_missing_by_variable(
             input_table.get("missing_by_variable", {}), columns),
+        column_widths=column_widths,
     )
 
 
@@ -688,8 +697,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                missing=_DEFAULT_MISSING, delimiter=",", interval_minutes=None, decimal=".",
                encoding=None, rows_before_header=0, rows_after_header=0, time_zone=None,
                flag_accept=_DEFAULT_FLAG_ACCEPT, accept_units=(), site=None,
-               unit_problems="refuse", missing_by_variable=None):
-    """Read delimited files of tower records into the canonical frame.
+               unit_problems="refuse", missing_by_variable=None, column_widths=None):
+    """Read delimited or fixed-width files of tower records into the canonical frame.
 
     Parameters
     ----------
@@ -718,6 +727,10 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         :data:`ABSURD_MAGNITUDE` or more are read as missing and counted.
     delimiter : str
         Field delimiter, one character, or ``"whitespace"`` for runs of blanks.
+    column_widths : sequence of int, optional
+        Characters of each column of a fixed-width file, left to right (instead of a
+        `delimiter`): every line below ``rows_before_header`` is cut at these widths
+        and its fields stripped of blanks; a field of blanks is an empty cell.
     interval_minutes : {30, 60}, optional
         Record interval [minutes]; inferred from the most common spacing if omitted.
     decimal : {".", ","}
@@ -822,6 +835,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     time_marks = _check_time_marks(time_marks)
     missing = _check_missing(missing)
     delimiter = _check_delimiter(delimiter)
+    column_widths = _check_column_widths(column_widths, None if delimiter == "," else delimiter)
+    if column_widths:
+        delimiter = "\t"                     # the fields cut at the widths, tab-joined
     decimal = _check_decimal(decimal, delimiter)
     encoding = _check_encoding(encoding)
     rows_before_header = _check_rows(rows_before_header, "rows_before_header")
@@ -868,7 +884,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               may_lack=len(paths) > 1, flag_missing=flag_missing,
                               time_marks=time_marks, site=site,
                               missing_by_variable=missing_by_variable,
-                              code_cells=code_cells)
+                              code_cells=code_cells, column_widths=column_widths)
         except _EmptyFileError as error:
             # one of several files without records (a logger file opened at a power cut):
             # it holds nothing to read, so the others are read and it is named
@@ -1561,6 +1577,25 @@ def _check_delimiter(value) -> str:
         raise ConfigError(f"[input] delimiter = {setting_text(value)}: expected a single character such "
                           "as \",\", \";\" or \"\\t\", or \"whitespace\"")
     return value
+
+
+def _check_column_widths(value, delimiter) -> tuple:
+    """``[input] column_widths``: characters of each column of a fixed-width file, in
+    order (layouts35); () where not set. Refused beside a delimiter, which it replaces."""
+    if value is None or (isinstance(value, (list, tuple)) and not value):
+        return ()
+    if (not isinstance(value, (list, tuple)) or len(value) < 2 or any(
+            isinstance(width, bool) or not isinstance(width, int) or width < 1
+            for width in value)):
+        raise ConfigError(f"[input] column_widths = {setting_text(value)}: expected the "
+                          "characters of each column of a fixed-width file, left to right, "
+                          "as whole numbers of 1 or more, e.g. [12, 8, 8, 8]")
+    if delimiter is not None:
+        raise ConfigError(f"[input] column_widths and delimiter = {setting_text(delimiter)} "
+                          "are both set: column_widths cuts the fields of a fixed-width file "
+                          "at its widths, a delimiter separates them; keep the one that "
+                          "fits the file")
+    return tuple(value)
 
 
 def _check_decimal(value, delimiter: str) -> str:
@@ -2682,8 +2717,8 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int,
                 f"{width + extra} fields where the header has {width}: the header's "
                 f"{_names(fused, 3)} stand(s) over {width + extra - width + len(fused)} "
                 "columns of the records, names run together (fixed-width columns whose "
-                "names fill their width); put a blank between the names in a copy of the "
-                "file, or save it with a delimiter (\",\", \";\" or a tab)")
+                "names fill their width); give the widths as [input] column_widths "
+                "(characters of each column, left to right) instead of delimiter")
         raise InputFileError(
             f"input file {str(path)!r}: line {int(filled[0]) + first_line} has "
             f"{width + extra} fields where the header has {width}; {filled.size} such "
@@ -2923,8 +2958,8 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
                 f"{where}: its field {joined!r} is two values run together; {len(inner)} "
                 "such line(s) before the last: the file's columns have fixed widths and a "
                 "value that fills its width (a minus sign, a missing code) touches the next "
-                "one, so blanks cannot split them; save the file with a delimiter (\",\", "
-                "\";\" or a tab) in a copy of the file")
+                "one, so blanks cannot split them; give the widths as [input] column_widths "
+                "(characters of each column, left to right) instead of delimiter")
         if delimiter == _WHITESPACE:
             # blanks collapse: an empty value leaves no field and moves the values after
             # it one column left (layouts25: the fix named was "write missing values as
@@ -3228,13 +3263,15 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
                utc_offset, warnings, may_lack=False, flag_missing=None,
                time_marks=None, site=None, missing_by_variable=None,
-               code_cells=None) -> dict:
+               code_cells=None, column_widths=()) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column.
 
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
     instead of refused (one of several files).
     """
     text, used_encoding = _decode(path, encoding, warnings)
+    if column_widths:                         # a fixed-width file (layouts35)
+        text = delimited(path, text, column_widths, rows_before_header)
     rows_before_header += _separator_line(text, delimiter, rows_before_header, path)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     try:
@@ -3253,7 +3290,11 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
             columns, units, list(raw.columns), header, time_columns, flag_columns, path,
             may_lack)
     except MissingColumnError as error:
-        raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}") from None
+        widths = (f"; the header cut at [input] column_widths = {list(column_widths)}: is a "
+                  "width off (a name cut, or parts of two names in one cell)?"
+                  if column_widths else "")
+        raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}{widths}") \
+            from None
     source = str(path)
     stamp_text = join_time_columns(raw, time_columns)
     judged_format = time_format

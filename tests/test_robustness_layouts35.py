@@ -13,11 +13,12 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart.errors import InputFileError, TimestampError
+from fluxpart.errors import ConfigError, InputFileError, MissingColumnError, TimestampError
 from fluxpart.fixed_width import fused_header_names, run_together_field
 from fluxpart.io import read_table
 from fluxpart.site import Site
 from fluxpart.stamp_places import stated_offset
+from fluxpart.uncertainty_assembly import measured_in_range
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
 MAPPING = {"nee": "fc", "rg": "sw", "tair": "ta", "vpd": "vpd", "ustar": "us"}
@@ -119,3 +120,61 @@ def test_dates_and_aligned_headers_are_not_taken_for_fields_run_together():
     assert run_together_field("0.5161013.2 1") == "0.5161013.2"
     # a header one name short over aligned columns: no cell spans two fields
     assert fused_header_names("   stamp      fc", "  202106010030   0.5  1.2") == []
+
+
+# ------------------------------------------------ [input] column_widths reads them
+WIDTHS = [12, 7, 7, 7, 7, 7]
+
+
+def _touching(tmp_path, title=""):
+    """Invented records in columns of WIDTHS whose values fill them: '-9999.0' and
+    '-10.125' touch their neighbour; blanks stand for a value not written."""
+    frame, ends = _records()
+    frame = frame.astype({"fc": str, "ta": str, "us": str})
+    frame["fc"] = pd.to_numeric(frame["fc"]).map("{:.3f}".format)
+    frame.loc[2, "fc"] = "-9999.0"
+    frame.loc[5, "ta"] = "-10.125"
+    frame.loc[7, "us"] = ""
+    path = tmp_path / "t.dat"
+    path.write_text(title + _fixed(frame, WIDTHS))
+    return path, frame, ends
+
+
+def test_column_widths_read_values_that_touch_and_blank_cells(tmp_path):
+    """layouts35: a fixed-width file read at its widths, value for value (a blank field
+    is an empty cell, read as missing; -9999.0 a missing code)."""
+    path, frame, ends = _touching(tmp_path, title="Quillmoor tower, fixed columns\n")
+    read, _ = _read(path, column_widths=WIDTHS, rows_before_header=1, missing=[-9999])
+    assert len(read) == len(frame)
+    expected = pd.to_numeric(frame["fc"]).where(lambda v: v != -9999)
+    np.testing.assert_array_equal(read["nee"].to_numpy(), expected.to_numpy())
+    assert read["tair"].iloc[5] == -10.125 and np.isnan(read["ustar"].iloc[7])
+    assert read.index[0] == ends[0] - pd.Timedelta("30min")
+
+
+def test_column_widths_keep_a_record_cut_short_and_refuse_a_tab(tmp_path):
+    path, _, _ = _touching(tmp_path)
+    lines = path.read_text().splitlines()
+    path.write_text("\n".join(lines[:-1] + [lines[-1][:16]]) + "\n")
+    warnings = _read(path, column_widths=WIDTHS, missing=[-9999])[1].warnings
+    assert any("record cut short" in w for w in warnings)
+    path.write_text("\n".join(lines[:3] + [lines[3].replace(" ", "\t", 1)] + lines[4:]) + "\n")
+    with pytest.raises(InputFileError, match=r"line 4 holds a tab"):
+        _read(path, column_widths=WIDTHS, missing=[-9999])
+
+
+def test_column_widths_beside_a_delimiter_or_off_by_one_are_named(tmp_path):
+    path, _, _ = _touching(tmp_path)
+    with pytest.raises(ConfigError, match=r"column_widths and delimiter"):
+        _read(path, column_widths=WIDTHS, delimiter="whitespace")
+    with pytest.raises(MissingColumnError, match=r"is a width off"):
+        _read(path, column_widths=[12, 6, 8, 7, 7, 7], missing=[-9999])
+
+
+def test_a_soil_temperature_code_outside_its_range_is_no_measurement_in_the_refit():
+    """layouts35: an undeclared -7999 in tsoil made the other temperature's refit fail,
+    and the temperature part of the uncertainty went NaN without a word."""
+    series = pd.DataFrame({"tsoil": [4.0, -7999.0, 5.0],
+                           "tsoil_out_of_range": [False, True, False]})
+    values = measured_in_range(series, "tsoil")
+    np.testing.assert_array_equal(values, [4.0, np.nan, 5.0])
