@@ -4340,6 +4340,14 @@ def _near(name: str, options: list, taken=()) -> str:
     """
     free = [str(o) for o in options if o not in taken]
     key = name.strip().casefold()
+    wrapped = [o for o in free if len(o) > 2 and o[0] == o[-1] == "'"]
+    if f"'{name.strip()}'" in wrapped and len(wrapped) * 2 > len(free):
+        # every name in single quotes: no CSV quotes, so each value is likely wrapped
+        # too; "did you mean \"'stamp'\"?" led to a stamp refusal next (layouts35)
+        return (f" (the file writes {name.strip()!r} as \"'{name.strip()}'\": its names, and "
+                "likely its values, are wrapped in single quotes ('...'), which are no CSV "
+                "quotes (those are double quotes, \"...\"): remove the single quotes in a "
+                "copy of the file)")
     # the name with a prefix or suffix joined by "_", "-", ".", ":" or a blank (a site
     # code or logger name before each column name, "QMG_fc" for "fc"; layouts31: the
     # file's columns were listed, none suggested)

@@ -178,3 +178,15 @@ def test_a_soil_temperature_code_outside_its_range_is_no_measurement_in_the_refi
                            "tsoil_out_of_range": [False, True, False]})
     values = measured_in_range(series, "tsoil")
     np.testing.assert_array_equal(values, [4.0, np.nan, 5.0])
+
+
+def test_names_and_values_in_single_quotes_are_named_as_such(tmp_path):
+    """Before: "did you mean \\"'stamp'\\"?", whose fix led to a refusal of the stamps;
+    now the single quotes, which are no CSV quotes (RFC 4180 quotes with '"'), are
+    named at once."""
+    frame, _ = _records(48)
+    path = tmp_path / "t.csv"
+    path.write_text(frame.astype(str).apply(lambda c: "'" + c + "'")
+                    .rename(columns=lambda c: f"'{c}'").to_csv(index=False))
+    with pytest.raises(MissingColumnError, match=r"wrapped in single quotes"):
+        _read(path)
