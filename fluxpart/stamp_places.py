@@ -372,7 +372,8 @@ _TIME_KEY = _LazyPattern(r"\btime\s*[\]\)]?\s*[:=]\s*\(?\s*(?P<value>[^,;]*)")
 _IN_UTC = _LazyPattern(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|zeitangaben"
                        r"|data|values|records|readings"   # "All values in UTC+2" (layouts35)
                        r"|zeiten|uhrzeiten|horodatage|heures?)\b[^.;]{0,24}?"
-                       r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+                       r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?"
+                       r"(?![a-z0-9]|-[a-z])")     # not "data in GMT-based format"
 #: "Time reference: UTC", "Timebase: UTC", "Time standard = GMT" (a clock or zone follows;
 #: bare numbers are not read, since "time base: 10" may be a sampling rate)
 _REFERENCE_KEY = _LazyPattern(r"(?:\btime[\s_-]*(?:reference|base|standard)|\btimebase"

@@ -47,7 +47,7 @@ def _read(path, **options):
     ("Logger clock offset: UTC+02:00", 2.0), ("clock_offset=+02:00", 2.0),
     ("Time-zone offset: -0500", -5.0), ("utc_offset_minutes=120", 2.0),
     ("Logger clock set to UTC+2", 2.0), ("All values in UTC+2", 2.0), ("Data in UTC", 0.0),
-    ("Hours from UTC: 2", 2.0), ("Date & time (UTC+2)", 2.0),
+    ("Hours from UTC: 2", 2.0), ("Date & time (UTC+2)", 2.0), ("Data in GMT-based format", None),
     # an offset counted from UTC in words, read as UTC (0) before layouts35
     ("Time zone (hours from UTC): 2", 2.0), ("Time zone: 1 h ahead of UTC", 1.0),
     ("Time zone: 5 hours behind GMT", -5.0), ("Time zone: 2 h from UTC", None),
