@@ -147,7 +147,7 @@ _TOP_LEVEL_KEYS = ("input", "processing", "site")
 _SITE_KEYS = ("canopy", "latitude", "longitude", "name", "utc_offset")
 _SITE_REQUIRED = ("name", "latitude", "longitude", "utc_offset")
 _INPUT_KEYS = ("accept_units", "column_widths", "columns", "decimal", "delimiter", "encoding",
-               "flag_accept",
+               "flag_accept", "other_names",
                "interval_minutes", "missing", "missing_by_variable", "path",
                "rows_after_header",
                "rows_before_header", "time_column", "time_format", "time_marks", "time_zone",
@@ -288,6 +288,9 @@ class ReadReport:
         Canonical name -> ``(column, files, records)`` for an optional mapped column
         that some of several files lack: those files and the records read as missing
         for that reason.
+    renamed_columns : dict
+        Other name -> ``(mapped name, files)``: a column read under its mapped name in
+        that many files that write it by another name of ``[input.other_names]``.
     """
 
     source: str
@@ -322,6 +325,7 @@ class ReadReport:
     unit_refusals: tuple = ()
     header_trailing_delimiter: int = 0
     absent_columns: dict = field(default_factory=dict)
+    renamed_columns: dict = field(default_factory=dict)
 
     def __str__(self) -> str:
         files = self.files or (self.source,)
@@ -350,6 +354,9 @@ class ReadReport:
             lines.append(f"header            ends with a delimiter the data lines lack (an empty "
                          f"last name) in {self.header_trailing_delimiter} of {len(files)} "
                          "file(s): the empty name was ignored")
+        for other, (name, count) in self.renamed_columns.items():
+            lines.append(f"column renamed    {other!r} read as {name!r} in {count} of "
+                         f"{len(files)} file(s) ([input.other_names])")
         if self.duplicate_rows or self.merged_rows:
             lines.append(f"rows dropped      {self.duplicate_rows} exact duplicate(s) within a "
                          f"file, {self.merged_rows} identical in overlapping files")
@@ -418,6 +425,9 @@ class ReadReport:
             # only where it happened: earlier manifests have no such key
             **({"header_trailing_delimiter": self.header_trailing_delimiter}
                if self.header_trailing_delimiter else {}),
+            **({"renamed_columns": {other: [name, count] for other, (name, count)
+                                    in self.renamed_columns.items()}}
+               if self.renamed_columns else {}),
             # records read as missing per variable because their file lacks its column
             **({"absent_column_records": {name: records for name, (_, _, records)
                                           in self.absent_columns.items()}}
@@ -497,6 +507,7 @@ class SiteConfig:
     accept_units: tuple = ()
     missing_by_variable: dict = field(default_factory=dict)
     column_widths: tuple = ()
+    other_names: dict = field(default_factory=dict)
 
     @property
     def input_path(self) -> Path:
@@ -548,7 +559,8 @@ class SiteConfig:
                 "flag_accept": self.flag_accept, "accept_units": self.accept_units,
                 "site": self.site} | ({"missing_by_variable": dict(self.missing_by_variable)}
                                       if self.missing_by_variable else {}) | (
-            {"column_widths": self.column_widths} if self.column_widths else {})
+            {"column_widths": self.column_widths} if self.column_widths else {}) | (
+            {"other_names": dict(self.other_names)} if self.other_names else {})
 
 
 def read_config(path) -> tuple[pd.DataFrame, Site]:
@@ -690,6 +702,8 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
         missing_by_variable=_check_missing_by_variable(
             input_table.get("missing_by_variable", {}), columns),
         column_widths=column_widths,
+        other_names=_check_other_names(input_table.get("other_names", {}), columns,
+                                       time_column),
     )
 
 
@@ -697,7 +711,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                missing=_DEFAULT_MISSING, delimiter=",", interval_minutes=None, decimal=".",
                encoding=None, rows_before_header=0, rows_after_header=0, time_zone=None,
                flag_accept=_DEFAULT_FLAG_ACCEPT, accept_units=(), site=None,
-               unit_problems="refuse", missing_by_variable=None, column_widths=None):
+               unit_problems="refuse", missing_by_variable=None, column_widths=None,
+               other_names=None):
     """Read delimited or fixed-width files of tower records into the canonical frame.
 
     Parameters
@@ -847,6 +862,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     flag_missing, exempted = _flag_missing_codes(missing, flag_accept)
     accept_units = _check_accept_units(accept_units)
     missing_by_variable = _check_missing_by_variable(missing_by_variable or {}, columns)
+    other_names = _check_other_names(other_names or {}, columns, time_columns)
     if unit_problems not in ("refuse", "report"):
         raise ConfigError(f"unit_problems = {unit_problems!r}: expected 'refuse' or 'report'")
     preflight: list[str] | None = [] if unit_problems == "report" else None
@@ -873,6 +889,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     # several files: a missing code no file shows as a reading alone is judged on the
     # cells of them all (review37: daily files of 48 records, each under MIN_CELLS)
     code_cells = {} if len(paths) > 1 else None
+    renamed_in: dict = {}                     # (other name, mapped name) -> files
     for path_ in paths:
         try:
             part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
@@ -884,7 +901,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               may_lack=len(paths) > 1, flag_missing=flag_missing,
                               time_marks=time_marks, site=site,
                               missing_by_variable=missing_by_variable,
-                              code_cells=code_cells, column_widths=column_widths)
+                              code_cells=code_cells, column_widths=column_widths,
+                              other_names=other_names, renamed_in=renamed_in)
         except _EmptyFileError as error:
             # one of several files without records (a logger file opened at a power cut):
             # it holds nothing to read, so the others are read and it is named
@@ -1161,6 +1179,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         merged_rows=combined["merged_rows"],
         header_trailing_delimiter=combined["header_trailing_delimiter"],
         absent_columns=absent,
+        renamed_columns={other: (name, len(files))
+                         for (other, name), files in renamed_in.items()},
         stamp_conversions=combined["conversions"] | (
             {"time_zone": time_zone} if time_zone else {}),
         nonfinite_cells={name: combined["nonfinite_cells"][name] for name in mapping},
@@ -1758,6 +1778,60 @@ def _refuse_ordinary_code_of_files(code_cells, parts) -> None:
         message = ordinary_code_message(name, column, code, written, night, shown)
         if message:
             raise ConfigError(message)
+
+
+def _check_other_names(value, columns, time_column) -> dict:
+    """``[input.other_names]``: canonical name -> other names its mapped column has in
+    some input files (a column renamed by a logger program's change; layouts35)."""
+    if not isinstance(value, dict):
+        raise ConfigError(f"[input] other_names = {setting_text(value)}: expected a table of "
+                          "canonical names and name lists, e.g. [input.other_names] nee = "
+                          "[\"co2_flux_v2\"]")
+    times = (time_column,) if isinstance(time_column, str) else tuple(time_column)
+    taken = {*times, *(v for v in columns.values() if isinstance(v, str))}
+    checked = {}
+    for name, others in value.items():
+        mapped = columns.get(name)
+        if not isinstance(mapped, str):
+            raise ConfigError(f"[input.other_names] {name}: no single column is mapped to "
+                              f"{name} in [input.columns] (mapped: {', '.join(columns)}), so "
+                              "it has no name to give other names to")
+        others = [others] if isinstance(others, str) else others
+        if not isinstance(others, (list, tuple)) or not others or any(
+                not isinstance(o, str) or not o.strip() for o in others):
+            raise ConfigError(f"[input.other_names] {name} = {setting_text(others)}: expected "
+                              f"a list of column names, e.g. {name} = [\"{mapped}_v2\"]")
+        clash = [o for o in others if o in taken]
+        if clash:
+            raise ConfigError(f"[input.other_names] {name} = {setting_text(others)}: "
+                              f"{clash[0]!r} is mapped or the time column already; another "
+                              "name of one column cannot be the name of another")
+        taken.update(others)
+        checked[name] = tuple(others)
+    return checked
+
+
+def _own_names(path, raw: pd.DataFrame, header: list, columns: dict, other_names: dict,
+               renamed_in: dict | None) -> tuple[pd.DataFrame, list]:
+    """The file's columns under their mapped names where it writes another name of
+    ``[input.other_names]``; a file holding both names, or two other names of one
+    column, is refused (which of them is the variable?)."""
+    renames = {}
+    for name, others in other_names.items():
+        mapped = columns[name]
+        present = [o for o in (mapped, *others) if o in raw.columns]
+        if len(present) > 1:
+            raise InputFileError(
+                f"input file {str(path)!r} holds {_names(present)}, which [input.other_names] "
+                f"{name} gives as names of one column ({mapped!r}): which of them is {name}? "
+                "map it in [input.columns] for this file alone, or remove the other names")
+        if present and present[0] != mapped:
+            renames[present[0]] = mapped
+            if renamed_in is not None:
+                renamed_in.setdefault((present[0], mapped), []).append(str(path))
+    if not renames:
+        return raw, header
+    return raw.rename(columns=renames), [renames.get(h, h) for h in header]
 
 
 def _check_accept_units(value) -> tuple:
@@ -3263,7 +3337,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
                utc_offset, warnings, may_lack=False, flag_missing=None,
                time_marks=None, site=None, missing_by_variable=None,
-               code_cells=None, column_widths=()) -> dict:
+               code_cells=None, column_widths=(), other_names=None,
+               renamed_in=None) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column.
 
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
@@ -3285,6 +3360,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         if named:
             raise InputFileError(named) from None
         raise
+    if other_names:
+        raw, header = _own_names(path, raw, header, columns, other_names, renamed_in)
     try:
         mapping, flag_columns, lacking = _resolve_columns(
             columns, units, list(raw.columns), header, time_columns, flag_columns, path,
@@ -3633,8 +3710,10 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                     "the shorter records to the longer interval)")
             joined.setdefault(lacks, []).append(name)
             continue
-        renamed = ("if one of them is the same quantity renamed, give it the same name in "
-                   "every file (in a copy); else " if free else "")
+        example = repr(free[0]) if len(free) == 1 else '"..."'
+        renamed = ("if one of them is the same quantity renamed, list its name in "
+                   f"[input.other_names] ({name} = [{example}]) or give it the same name "
+                   "in every file (in a copy); else " if free else "")
         other_stamps = _same_span_other_stamps(without, [part for part in parts if (
             name, column) not in part["lacking"]])
         offset = _grid_offset(without, [part for part in parts if (
@@ -3654,10 +3733,14 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                 "record interval and stamps in each; average that file to the others' "
                 "records in a copy")
         if near:
+            suggested = re.search(r"did you mean ('[^']+')", near)
+            listed = (f"List its other name in [input.other_names] ({name} = "
+                      f"[{suggested.group(1)}]), give" if suggested and name != "nee_flag"
+                      else "Give")
             raise MissingColumnError(
                 f"{found}, which has an unmapped column of a similar name{near}: a column "
-                "renamed between files? Give the column the same name in every file (in a "
-                "copy), or read the files in separate runs")
+                f"renamed between files? {listed} the column the same name in every file "
+                "(in a copy), or read the files in separate runs")
         if not optional:
             why = {"nee_flag": "records without the site's flag would enter unjudged",
                    "storage": "every NEE of a file without storage would be missing"}.get(
@@ -3669,8 +3752,9 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                 f"where there is no value){remove}")
         records = sum(len(part["stamps"]) for part in without)
         absent[name] = (column, tuple(part["source"] for part in without), records)
-        rename = ("; if one of those columns is it renamed, give it the same name in every "
-                  "file (in a copy)" if free else "")
+        rename = ("; if one of those columns is it renamed, list its name in "
+                  f"[input.other_names] {name}, or give it the same name in every file (in "
+                  "a copy)" if free else "")
         warnings.append(f"{name}: column {column!r} is in {_file_list(having)} but not in "
                         f"{lacks}{unmapped}; its {records} record(s) there are read as missing "
                         f"{name} (as if the column were there with empty cells){rename}; to "

@@ -190,3 +190,31 @@ def test_names_and_values_in_single_quotes_are_named_as_such(tmp_path):
                     .rename(columns=lambda c: f"'{c}'").to_csv(index=False))
     with pytest.raises(MissingColumnError, match=r"wrapped in single quotes"):
         _read(path)
+
+
+# ------------------------------------------------ [input.other_names]: a column renamed
+def test_a_column_renamed_between_files_is_read_under_its_other_name(tmp_path):
+    """layouts35: a logger program's change renamed the flux column from one file on;
+    before, the only fix was a copy of the files with one name."""
+    frame, ends = _records()
+    half = len(frame) // 2
+    frame.iloc[:half].to_csv(tmp_path / "a.csv", index=False)
+    frame.iloc[half:].rename(columns={"fc": "fc_v2"}).to_csv(tmp_path / "b.csv", index=False)
+    paths = [tmp_path / "a.csv", tmp_path / "b.csv"]
+    read, report = _read(paths, other_names={"nee": ["fc_v2"]})
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["fc"].to_numpy())
+    assert report.renamed_columns == {"fc_v2": ("fc", 1)}
+    assert report.to_dict()["renamed_columns"] == {"fc_v2": ["fc", 1]}
+    with pytest.raises(MissingColumnError, match=r"\[input.other_names\] \(nee = \['fc_v2'\]\)"):
+        _read(paths)
+
+
+def test_a_file_with_both_names_or_an_unmapped_variable_is_refused(tmp_path):
+    frame, _ = _records()
+    frame.assign(fc_v2=frame["fc"]).to_csv(tmp_path / "a.csv", index=False)
+    with pytest.raises(InputFileError, match=r"holds 'fc', 'fc_v2'.*which of them is nee"):
+        _read(tmp_path / "a.csv", other_names={"nee": ["fc_v2"]})
+    with pytest.raises(ConfigError, match=r"no single column is mapped to tsoil"):
+        _read(tmp_path / "a.csv", other_names={"tsoil": ["ts2"]})
+    with pytest.raises(ConfigError, match=r"'sw' is mapped or the time column"):
+        _read(tmp_path / "a.csv", other_names={"nee": ["sw"]})
