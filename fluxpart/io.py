@@ -73,6 +73,7 @@ from .errors import (
     TimestampError,
     UnitError,
 )
+from .fixed_width import delimited, fused_header_names, run_together_field
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .site import Site
@@ -145,7 +146,8 @@ _DEFAULT_FLAG_ACCEPT = (0,)
 _TOP_LEVEL_KEYS = ("input", "processing", "site")
 _SITE_KEYS = ("canopy", "latitude", "longitude", "name", "utc_offset")
 _SITE_REQUIRED = ("name", "latitude", "longitude", "utc_offset")
-_INPUT_KEYS = ("accept_units", "columns", "decimal", "delimiter", "encoding", "flag_accept",
+_INPUT_KEYS = ("accept_units", "column_widths", "columns", "decimal", "delimiter", "encoding",
+               "flag_accept", "other_names",
                "interval_minutes", "missing", "missing_by_variable", "path",
                "rows_after_header",
                "rows_before_header", "time_column", "time_format", "time_marks", "time_zone",
@@ -286,6 +288,9 @@ class ReadReport:
         Canonical name -> ``(column, files, records)`` for an optional mapped column
         that some of several files lack: those files and the records read as missing
         for that reason.
+    renamed_columns : dict
+        Other name -> ``(mapped name, files)``: a column read under its mapped name in
+        that many files that write it by another name of ``[input.other_names]``.
     """
 
     source: str
@@ -320,6 +325,7 @@ class ReadReport:
     unit_refusals: tuple = ()
     header_trailing_delimiter: int = 0
     absent_columns: dict = field(default_factory=dict)
+    renamed_columns: dict = field(default_factory=dict)
 
     def __str__(self) -> str:
         files = self.files or (self.source,)
@@ -348,6 +354,9 @@ class ReadReport:
             lines.append(f"header            ends with a delimiter the data lines lack (an empty "
                          f"last name) in {self.header_trailing_delimiter} of {len(files)} "
                          "file(s): the empty name was ignored")
+        for other, (name, count) in self.renamed_columns.items():
+            lines.append(f"column renamed    {other!r} read as {name!r} in {count} of "
+                         f"{len(files)} file(s) ([input.other_names])")
         if self.duplicate_rows or self.merged_rows:
             lines.append(f"rows dropped      {self.duplicate_rows} exact duplicate(s) within a "
                          f"file, {self.merged_rows} identical in overlapping files")
@@ -416,6 +425,9 @@ class ReadReport:
             # only where it happened: earlier manifests have no such key
             **({"header_trailing_delimiter": self.header_trailing_delimiter}
                if self.header_trailing_delimiter else {}),
+            **({"renamed_columns": {other: [name, count] for other, (name, count)
+                                    in self.renamed_columns.items()}}
+               if self.renamed_columns else {}),
             # records read as missing per variable because their file lacks its column
             **({"absent_column_records": {name: records for name, (_, _, records)
                                           in self.absent_columns.items()}}
@@ -469,6 +481,9 @@ class SiteConfig:
     missing_by_variable : dict
         Canonical name -> codes meaning "no value" in that variable's column only, beside
         `missing` (``[input.missing_by_variable]``).
+    column_widths : tuple of int
+        Characters of each column of a fixed-width file (``[input] column_widths``), or
+        () for a delimited one.
     """
 
     site: Site
@@ -491,6 +506,8 @@ class SiteConfig:
     flag_accept: tuple = _DEFAULT_FLAG_ACCEPT
     accept_units: tuple = ()
     missing_by_variable: dict = field(default_factory=dict)
+    column_widths: tuple = ()
+    other_names: dict = field(default_factory=dict)
 
     @property
     def input_path(self) -> Path:
@@ -541,7 +558,9 @@ class SiteConfig:
                 "rows_after_header": self.rows_after_header, "time_zone": self.time_zone,
                 "flag_accept": self.flag_accept, "accept_units": self.accept_units,
                 "site": self.site} | ({"missing_by_variable": dict(self.missing_by_variable)}
-                                      if self.missing_by_variable else {})
+                                      if self.missing_by_variable else {}) | (
+            {"column_widths": self.column_widths} if self.column_widths else {}) | (
+            {"other_names": dict(self.other_names)} if self.other_names else {})
 
 
 def read_config(path) -> tuple[pd.DataFrame, Site]:
@@ -655,6 +674,8 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
     if time_zone is not None:
         check_time_zone(time_zone, site.utc_offset)
     delimiter = _check_delimiter(input_table.get("delimiter", ","))
+    column_widths = _check_column_widths(input_table.get("column_widths"),
+                                         input_table.get("delimiter"))
     return SiteConfig(
         site=site,
         config_path=path,
@@ -680,6 +701,9 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
         accept_units=_check_accept_units(input_table.get("accept_units", [])),
         missing_by_variable=_check_missing_by_variable(
             input_table.get("missing_by_variable", {}), columns),
+        column_widths=column_widths,
+        other_names=_check_other_names(input_table.get("other_names", {}), columns,
+                                       time_column),
     )
 
 
@@ -687,8 +711,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                missing=_DEFAULT_MISSING, delimiter=",", interval_minutes=None, decimal=".",
                encoding=None, rows_before_header=0, rows_after_header=0, time_zone=None,
                flag_accept=_DEFAULT_FLAG_ACCEPT, accept_units=(), site=None,
-               unit_problems="refuse", missing_by_variable=None):
-    """Read delimited files of tower records into the canonical frame.
+               unit_problems="refuse", missing_by_variable=None, column_widths=None,
+               other_names=None):
+    """Read delimited or fixed-width files of tower records into the canonical frame.
 
     Parameters
     ----------
@@ -717,6 +742,10 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         :data:`ABSURD_MAGNITUDE` or more are read as missing and counted.
     delimiter : str
         Field delimiter, one character, or ``"whitespace"`` for runs of blanks.
+    column_widths : sequence of int, optional
+        Characters of each column of a fixed-width file, left to right (instead of a
+        `delimiter`): every line below ``rows_before_header`` is cut at these widths
+        and its fields stripped of blanks; a field of blanks is an empty cell.
     interval_minutes : {30, 60}, optional
         Record interval [minutes]; inferred from the most common spacing if omitted.
     decimal : {".", ","}
@@ -821,6 +850,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     time_marks = _check_time_marks(time_marks)
     missing = _check_missing(missing)
     delimiter = _check_delimiter(delimiter)
+    column_widths = _check_column_widths(column_widths, None if delimiter == "," else delimiter)
+    if column_widths:
+        delimiter = "\t"                     # the fields cut at the widths, tab-joined
     decimal = _check_decimal(decimal, delimiter)
     encoding = _check_encoding(encoding)
     rows_before_header = _check_rows(rows_before_header, "rows_before_header")
@@ -830,6 +862,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     flag_missing, exempted = _flag_missing_codes(missing, flag_accept)
     accept_units = _check_accept_units(accept_units)
     missing_by_variable = _check_missing_by_variable(missing_by_variable or {}, columns)
+    other_names = _check_other_names(other_names or {}, columns, time_columns)
     if unit_problems not in ("refuse", "report"):
         raise ConfigError(f"unit_problems = {unit_problems!r}: expected 'refuse' or 'report'")
     preflight: list[str] | None = [] if unit_problems == "report" else None
@@ -856,6 +889,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     # several files: a missing code no file shows as a reading alone is judged on the
     # cells of them all (review37: daily files of 48 records, each under MIN_CELLS)
     code_cells = {} if len(paths) > 1 else None
+    renamed_in: dict = {}                     # (other name, mapped name) -> files
     for path_ in paths:
         try:
             part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
@@ -867,7 +901,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               may_lack=len(paths) > 1, flag_missing=flag_missing,
                               time_marks=time_marks, site=site,
                               missing_by_variable=missing_by_variable,
-                              code_cells=code_cells)
+                              code_cells=code_cells, column_widths=column_widths,
+                              other_names=other_names, renamed_in=renamed_in)
         except _EmptyFileError as error:
             # one of several files without records (a logger file opened at a power cut):
             # it holds nothing to read, so the others are read and it is named
@@ -1162,6 +1197,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         merged_rows=combined["merged_rows"],
         header_trailing_delimiter=combined["header_trailing_delimiter"],
         absent_columns=absent,
+        renamed_columns={other: (name, len(files))
+                         for (other, name), files in renamed_in.items()},
         stamp_conversions=combined["conversions"] | (
             {"time_zone": time_zone} if time_zone else {}),
         nonfinite_cells={name: combined["nonfinite_cells"][name] for name in mapping},
@@ -1580,6 +1617,25 @@ def _check_delimiter(value) -> str:
     return value
 
 
+def _check_column_widths(value, delimiter) -> tuple:
+    """``[input] column_widths``: characters of each column of a fixed-width file, in
+    order (layouts35); () where not set. Refused beside a delimiter, which it replaces."""
+    if value is None or (isinstance(value, (list, tuple)) and not value):
+        return ()
+    if (not isinstance(value, (list, tuple)) or len(value) < 2 or any(
+            isinstance(width, bool) or not isinstance(width, int) or width < 1
+            for width in value)):
+        raise ConfigError(f"[input] column_widths = {setting_text(value)}: expected the "
+                          "characters of each column of a fixed-width file, left to right, "
+                          "as whole numbers of 1 or more, e.g. [12, 8, 8, 8]")
+    if delimiter is not None:
+        raise ConfigError(f"[input] column_widths and delimiter = {setting_text(delimiter)} "
+                          "are both set: column_widths cuts the fields of a fixed-width file "
+                          "at its widths, a delimiter separates them; keep the one that "
+                          "fits the file")
+    return tuple(value)
+
+
 def _check_decimal(value, delimiter: str) -> str:
     if value not in (".", ","):
         raise ConfigError(f"[input] decimal = {setting_text(value)}: expected \".\" or \",\"")
@@ -1740,6 +1796,60 @@ def _refuse_ordinary_code_of_files(code_cells, parts) -> None:
         message = ordinary_code_message(name, column, code, written, night, shown)
         if message:
             raise ConfigError(message)
+
+
+def _check_other_names(value, columns, time_column) -> dict:
+    """``[input.other_names]``: canonical name -> other names its mapped column has in
+    some input files (a column renamed by a logger program's change; layouts35)."""
+    if not isinstance(value, dict):
+        raise ConfigError(f"[input] other_names = {setting_text(value)}: expected a table of "
+                          "canonical names and name lists, e.g. [input.other_names] nee = "
+                          "[\"co2_flux_v2\"]")
+    times = (time_column,) if isinstance(time_column, str) else tuple(time_column)
+    taken = {*times, *(v for v in columns.values() if isinstance(v, str))}
+    checked = {}
+    for name, others in value.items():
+        mapped = columns.get(name)
+        if not isinstance(mapped, str):
+            raise ConfigError(f"[input.other_names] {name}: no single column is mapped to "
+                              f"{name} in [input.columns] (mapped: {', '.join(columns)}), so "
+                              "it has no name to give other names to")
+        others = [others] if isinstance(others, str) else others
+        if not isinstance(others, (list, tuple)) or not others or any(
+                not isinstance(o, str) or not o.strip() for o in others):
+            raise ConfigError(f"[input.other_names] {name} = {setting_text(others)}: expected "
+                              f"a list of column names, e.g. {name} = [\"{mapped}_v2\"]")
+        clash = [o for o in others if o in taken]
+        if clash:
+            raise ConfigError(f"[input.other_names] {name} = {setting_text(others)}: "
+                              f"{clash[0]!r} is mapped or the time column already; another "
+                              "name of one column cannot be the name of another")
+        taken.update(others)
+        checked[name] = tuple(others)
+    return checked
+
+
+def _own_names(path, raw: pd.DataFrame, header: list, columns: dict, other_names: dict,
+               renamed_in: dict | None) -> tuple[pd.DataFrame, list]:
+    """The file's columns under their mapped names where it writes another name of
+    ``[input.other_names]``; a file holding both names, or two other names of one
+    column, is refused (which of them is the variable?)."""
+    renames = {}
+    for name, others in other_names.items():
+        mapped = columns[name]
+        present = [o for o in (mapped, *others) if o in raw.columns]
+        if len(present) > 1:
+            raise InputFileError(
+                f"input file {str(path)!r} holds {_names(present)}, which [input.other_names] "
+                f"{name} gives as names of one column ({mapped!r}): which of them is {name}? "
+                "map it in [input.columns] for this file alone, or remove the other names")
+        if present and present[0] != mapped:
+            renames[present[0]] = mapped
+            if renamed_in is not None:
+                renamed_in.setdefault((present[0], mapped), []).append(str(path))
+    if not renames:
+        return raw, header
+    return raw.rename(columns=renames), [renames.get(h, h) for h in header]
 
 
 def _check_accept_units(value) -> tuple:
@@ -2419,7 +2529,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
         return _read_text(path, "\n".join(text_lines[:number]) + "\n", delimiter,
                           rows_before_header, rows_after_header, warnings)
     first_line = rows_before_header + rows_after_header + 2
-    raw = _trailing_fields(path, raw, first_line, delimiter)
+    raw = _trailing_fields(path, raw, first_line, delimiter, *_header_and_first(
+        text, rows_before_header, first_line, delimiter))
     blank = _blank_rows(raw)
     lines = _record_lines(text, first_line, len(raw), delimiter)
     raw = raw.loc[~blank].reset_index(drop=True)
@@ -2632,7 +2743,8 @@ def _named_width(header: list) -> int:
 
 
 def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int,
-                     delimiter: str = ",") -> pd.DataFrame:
+                     delimiter: str = ",", header_line: str = "",
+                     data_line: str = "") -> pd.DataFrame:
     """Undo the parser's row index taken from data lines with more fields than the header.
 
     When the first data line has k fields more than the header, the parser reads the
@@ -2687,12 +2799,35 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int,
                 f"input file {str(path)!r}: the header is one cell holding "
                 f"{setting_text(separator)} and the data lines split at their commas: set "
                 f"[input] delimiter = {setting_text(separator)}")
+        fused = (fused_header_names(header_line, data_line)
+                 if delimiter == _WHITESPACE and data_line else [])
+        if fused:
+            # names that fill their fixed width touch (layouts35: "is a column name
+            # missing?")
+            raise InputFileError(
+                f"input file {str(path)!r}: line {int(filled[0]) + first_line} has "
+                f"{width + extra} fields where the header has {width}: the header's "
+                f"{_names(fused, 3)} stand(s) over {width + extra - width + len(fused)} "
+                "columns of the records, names run together (fixed-width columns whose "
+                "names fill their width); give the widths as [input] column_widths "
+                "(characters of each column, left to right) instead of delimiter")
         raise InputFileError(
             f"input file {str(path)!r}: line {int(filled[0]) + first_line} has "
             f"{width + extra} fields where the header has {width}; {filled.size} such "
             "line(s) hold values beyond the last named column. Is a column name missing in "
             "the header, or is [input] delimiter wrong? Correct a copy of the file")
     return pd.DataFrame(dict(zip(raw.columns, cells[:width], strict=True)))
+
+
+def _header_and_first(text: str, rows_before_header: int, first_line: int,
+                      delimiter: str) -> tuple[str, str]:
+    """The header line and the first record line of a blank-separated file (else two
+    empty strings: only :func:`fixed_width.fused_header_names` reads them)."""
+    if delimiter != _WHITESPACE:
+        return "", ""
+    lines = text.splitlines()[:first_line]
+    return (lines[rows_before_header] if len(lines) > rows_before_header else "",
+            lines[first_line - 1] if len(lines) >= first_line else "")
 
 
 def _record_lines(text: str, first_line: int, count: int, delimiter: str) -> np.ndarray:
@@ -2906,6 +3041,17 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
                  f"({_shown_line(text_lines[lines[row] - 1])!r}) has "
                  f"{_field_count(text_lines[lines[row] - 1], delimiter)} fields where the "
                  f"header has {width}")
+        joined = (run_together_field(text_lines[lines[row] - 1])
+                  if delimiter == _WHITESPACE else None)
+        if joined:
+            # fixed-width columns whose values fill their width touch (layouts35: named
+            # an empty value or a record cut short)
+            raise InputFileError(
+                f"{where}: its field {joined!r} is two values run together; {len(inner)} "
+                "such line(s) before the last: the file's columns have fixed widths and a "
+                "value that fills its width (a minus sign, a missing code) touches the next "
+                "one, so blanks cannot split them; give the widths as [input] column_widths "
+                "(characters of each column, left to right) instead of delimiter")
         if delimiter == _WHITESPACE:
             # blanks collapse: an empty value leaves no field and moves the values after
             # it one column left (layouts25: the fix named was "write missing values as
@@ -3209,13 +3355,16 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
                utc_offset, warnings, may_lack=False, flag_missing=None,
                time_marks=None, site=None, missing_by_variable=None,
-               code_cells=None) -> dict:
+               code_cells=None, column_widths=(), other_names=None,
+               renamed_in=None) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column.
 
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
     instead of refused (one of several files).
     """
     text, used_encoding = _decode(path, encoding, warnings)
+    if column_widths:                         # a fixed-width file (layouts35)
+        text = delimited(path, text, column_widths, rows_before_header)
     rows_before_header += _separator_line(text, delimiter, rows_before_header, path)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     try:
@@ -3229,12 +3378,18 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         if named:
             raise InputFileError(named) from None
         raise
+    if other_names:
+        raw, header = _own_names(path, raw, header, columns, other_names, renamed_in)
     try:
         mapping, flag_columns, lacking = _resolve_columns(
             columns, units, list(raw.columns), header, time_columns, flag_columns, path,
             may_lack)
     except MissingColumnError as error:
-        raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}") from None
+        widths = (f"; the header cut at [input] column_widths = {list(column_widths)}: is a "
+                  "width off (a name cut, or parts of two names in one cell)?"
+                  if column_widths else "")
+        raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}{widths}") \
+            from None
     source = str(path)
     stamp_text = join_time_columns(raw, time_columns)
     judged_format = time_format
@@ -3573,8 +3728,10 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                     "the shorter records to the longer interval)")
             joined.setdefault(lacks, []).append(name)
             continue
-        renamed = ("if one of them is the same quantity renamed, give it the same name in "
-                   "every file (in a copy); else " if free else "")
+        example = repr(free[0]) if len(free) == 1 else '"..."'
+        renamed = ("if one of them is the same quantity renamed, list its name in "
+                   f"[input.other_names] ({name} = [{example}]) or give it the same name "
+                   "in every file (in a copy); else " if free else "")
         other_stamps = _same_span_other_stamps(without, [part for part in parts if (
             name, column) not in part["lacking"]])
         offset = _grid_offset(without, [part for part in parts if (
@@ -3594,10 +3751,14 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                 "record interval and stamps in each; average that file to the others' "
                 "records in a copy")
         if near:
+            suggested = re.search(r"did you mean ('[^']+')", near)
+            listed = (f"List its other name in [input.other_names] ({name} = "
+                      f"[{suggested.group(1)}]), give" if suggested and name != "nee_flag"
+                      else "Give")
             raise MissingColumnError(
                 f"{found}, which has an unmapped column of a similar name{near}: a column "
-                "renamed between files? Give the column the same name in every file (in a "
-                "copy), or read the files in separate runs")
+                f"renamed between files? {listed} the column the same name in every file "
+                "(in a copy), or read the files in separate runs")
         if not optional:
             why = {"nee_flag": "records without the site's flag would enter unjudged",
                    "storage": "every NEE of a file without storage would be missing"}.get(
@@ -3609,8 +3770,9 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                 f"where there is no value){remove}")
         records = sum(len(part["stamps"]) for part in without)
         absent[name] = (column, tuple(part["source"] for part in without), records)
-        rename = ("; if one of those columns is it renamed, give it the same name in every "
-                  "file (in a copy)" if free else "")
+        rename = ("; if one of those columns is it renamed, list its name in "
+                  f"[input.other_names] {name}, or give it the same name in every file (in "
+                  "a copy)" if free else "")
         warnings.append(f"{name}: column {column!r} is in {_file_list(having)} but not in "
                         f"{lacks}{unmapped}; its {records} record(s) there are read as missing "
                         f"{name} (as if the column were there with empty cells){rename}; to "
@@ -4280,6 +4442,14 @@ def _near(name: str, options: list, taken=()) -> str:
     """
     free = [str(o) for o in options if o not in taken]
     key = name.strip().casefold()
+    wrapped = [o for o in free if len(o) > 2 and o[0] == o[-1] == "'"]
+    if f"'{name.strip()}'" in wrapped and len(wrapped) * 2 > len(free):
+        # every name in single quotes: no CSV quotes, so each value is likely wrapped
+        # too; "did you mean \"'stamp'\"?" led to a stamp refusal next (layouts35)
+        return (f" (the file writes {name.strip()!r} as \"'{name.strip()}'\": its names, and "
+                "likely its values, are wrapped in single quotes ('...'), which are no CSV "
+                "quotes (those are double quotes, \"...\"): remove the single quotes in a "
+                "copy of the file)")
     # the name with a prefix or suffix joined by "_", "-", ".", ":" or a blank (a site
     # code or logger name before each column name, "QMG_fc" for "fc"; layouts31: the
     # file's columns were listed, none suggested)

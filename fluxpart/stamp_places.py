@@ -315,6 +315,7 @@ _CELL_PLACE = _LazyPattern(r"\b(?:interval|period|averaging|window)\s+"
 #: date written before a clock ("Exported 2021-06-01 12:00 UTC") is not one
 _STAMPS_CLOCK = _LazyPattern(
     r"\b(?:time\s*stamps?|timestamps?|stamps?|date\s*/\s*time|date\s*time|datetime|"
+    r"date\s*(?:&|and)\s*time|"
     r"local\s+time|all\s+data|all\s+times|times|zeitstempel|horodatage)\b[^0-9.;]{0,15}?"
     r"(?<![a-z])(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
 #: A key of the zone or offset, then its value. Besides English and German, the words
@@ -323,13 +324,33 @@ _STAMPS_CLOCK = _LazyPattern(
 #: since layouts27: "Fuseau horaire : UTC" was read as local standard time); a unit in
 #: brackets after the key ("UTC offset (h): 2", "UTC offset [min]: 60") gives the unit of
 #: a bare number.
-_ZONE_KEY = _LazyPattern(r"(?:time[\s_-]*zone|zeitzone|\btz\b|utc[\s_-]*offset|gmt[\s_-]*offset"
-                         r"|offset\s+(?:from|to)\s+(?:utc|gmt)|fuseau\s+horaire"
+_ZONE_KEY = _LazyPattern(r"(?:time[\s_-]*zone(?:[\s_-]*offset)?|zeitzone|\btz\b|utc[\s_-]*offset"
+                         r"|gmt[\s_-]*offset|offset\s+(?:from|to)\s+(?:utc|gmt)|fuseau\s+horaire"
                          r"|zona\s+horaria|huso\s+horario|fuso\s+orario|fuso\s+hor[aá]rio"
-                         r"|tijd\s*s?zone|strefa\s+czasowa|tidszon|tidssone)"
+                         r"|tijd\s*s?zone|strefa\s+czasowa|tidszon|tidssone"
+                         r"|(?P<unit_key>hours?|minutes?)\s+(?:from|to|relative\s+to)\s+(?:utc|gmt))"
+                         # "utc_offset_minutes = 120" (layouts35)
+                         r"(?:[\s_-]*(?P<unit_word>hours|hrs|minutes|mins)\b)?"
                          r"(?:\s*[\(\[](?:utc|gmt)[\s_-]*offset[\)\]])?"   # "Time zone (UTC offset)"
-                         r"(?:\s*[\(\[](?P<unit>h|hrs?|hours?|min|mins|minutes?)[\)\]])?"
+                         # "(h)", "[min]", "(hours from UTC)" (layouts35: read as UTC before)
+                         r"(?:\s*[\(\[](?P<unit>h|hrs?|hours?|min|mins|minutes?)"
+                         r"(?:\s+(?:from|to|relative\s+to)\s+(?:utc|gmt))?[\)\]])?"
                          r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*(?P<value>[^,;]*)")
+#: "1 h ahead of UTC", "5 hours behind GMT": an offset written in words (layouts35: such a
+#: value was read as UTC, the clock it is counted from)
+_RELATIVE_OFFSET = _LazyPattern(r"(\d{1,2}(?:\.\d+)?)\s*(h|hrs?|hours?|min|mins|minutes?)?\s+"
+                                r"(ahead\s+of|behind|east\s+of|west\s+of)\s+(?:utc|gmt)")
+#: "Logger clock offset: UTC+02:00", "clock_offset = +0200": a clock's offset key, read
+#: only where its value is a clock or an offset of a zone's form (hours with :00, :30 or
+#: :45), since "clock offset: +12 s" or "-00:03" is a clock's drift (layouts35)
+_CLOCK_OFFSET_KEY = _LazyPattern(r"\bclock[\s_-]*offset\s*[:=]\s*(?P<value>[^,;]*)")
+_COUNTED_FROM = _LazyPattern(r"\d\s*(?:h|hrs?|hours?|min|mins|minutes?)?\s+(?:from|to|ahead|"
+                             r"behind|before|after|east|west|relative)\b")
+_ZONE_FORM_OFFSET = _LazyPattern(r"^([+-])(\d{2}):?(00|30|45)$")
+#: "Logger clock set to UTC+2" (not "synchronised to", which may name the clock's source
+#: only)
+_CLOCK_SET = _LazyPattern(r"\bclock\s+(?:is\s+)?(?:set|kept|running)\s+(?:to|on|in)\s+"
+                          r"(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
 #: "Time offset: +1 h" (a key read only with a unit or a sign and "UTC": "time offset:
 #: 0.2" may be a sensor's lag)
 _TIME_OFFSET_KEY = _LazyPattern(r"\btime[\s_-]*offset\s*[:=]\s*(?P<value>[^,;]*)")
@@ -349,8 +370,10 @@ _CLOCK_VALUE = _LazyPattern(r"(?:utc|gmt|gps|z|zulu|ut|tu|universal)(?:\s*time)?
 #: after the key states nothing: "Export time: 2021-06-01 12:00 UTC")
 _TIME_KEY = _LazyPattern(r"\btime\s*[\]\)]?\s*[:=]\s*\(?\s*(?P<value>[^,;]*)")
 _IN_UTC = _LazyPattern(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|zeitangaben"
+                       r"|data|values|records|readings"   # "All values in UTC+2" (layouts35)
                        r"|zeiten|uhrzeiten|horodatage|heures?)\b[^.;]{0,24}?"
-                       r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
+                       r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?"
+                       r"(?![a-z0-9]|-[a-z])")     # not "data in GMT-based format"
 #: "Time reference: UTC", "Timebase: UTC", "Time standard = GMT" (a clock or zone follows;
 #: bare numbers are not read, since "time base: 10" may be a sampling rate)
 _REFERENCE_KEY = _LazyPattern(r"(?:\btime[\s_-]*(?:reference|base|standard)|\btimebase"
@@ -508,11 +531,23 @@ def stated_offset(text: str) -> float | None:
     # quotes aside: a spreadsheet's key and value cells '"Timezone","UTC"' (layouts27)
     original = text.replace("\u2212", "-").replace('"', "").strip()
     lowered = original.lower()
+    key = _CLOCK_OFFSET_KEY.search(lowered)
+    if key:                                   # "Logger clock offset: UTC+02:00" (layouts35)
+        value = key.group("value").strip().strip('"\'').strip()
+        zone_form = _ZONE_FORM_OFFSET.match(value.replace(" ", ""))
+        if zone_form:
+            sign, hours, minutes = zone_form.groups()
+            offset = int(hours) + int(minutes) / 60
+            return -offset if sign == "-" else float(offset)
+        return _clock_value(value)
+    key = _CLOCK_SET.search(lowered)
+    if key:                                   # "Logger clock set to UTC+2" (layouts35)
+        return column_utc_offset(key.group(1) + (key.group(2) or "").replace(" ", ""))
     key = _CLOCK_KEY.search(lowered) or _REFERENCE_KEY.search(lowered)
     if key and not _ZONE_KEY.search(lowered):
         # "Logger clock: EST", "Time reference: UTC": a clock or zone, not bare hours
         value = key.group(1).strip().strip('"\'').strip()
-        offset = column_utc_offset(value)
+        offset = _value_clock(value)
         if offset is None and len(lowered) == len(original):
             offset = zone_offset(original[key.start(1):key.end(1)])
         if offset is None:
@@ -521,15 +556,16 @@ def stated_offset(text: str) -> float | None:
     key = _ZONE_KEY.search(lowered)
     if key:
         value = key.group("value").strip().strip('"\'').strip()
+        unit = key.group("unit") or key.group("unit_word") or key.group("unit_key")
         bare = _BARE_OFFSET.match(value.replace(" ", ""))
-        if bare and not key.group("unit"):    # "[min]: -330" is minutes, not -03:30
+        if bare and not unit:                 # "[min]: -330" is minutes, not -03:30
             sign, hours, minutes = bare.groups()
             offset = int(hours) + int(minutes or 0) / 60
             return -offset if sign == "-" else float(offset)
-        number = _number_offset(value, key.group("unit"))   # "1", "+1 h", "[min]: 60"
+        number = _number_offset(value, unit)   # "1", "+1 h", "[min]: 60"
         if number is not None:
             return number
-        offset = column_utc_offset(value)
+        offset = _value_clock(value)
         if offset is None and len(lowered) == len(original):   # "Time zone: EET"
             offset = zone_offset(original[key.start("value"):key.end("value")])
         if offset is None:
@@ -569,6 +605,23 @@ def stated_offset(text: str) -> float | None:
     if offset is None and re.fullmatch(r"\(?[A-Z]{3,4}\)?", original):    # a line "EET"
         offset = zone_offset(original)
     return offset
+
+
+def _value_clock(value: str) -> float | None:
+    """The offset [h] of the value of a zone or clock key that names UTC or GMT: written
+    in words ("1 h ahead of UTC", "5 hours behind GMT"), or as ``UTC+1`` (see
+    :func:`column_utc_offset`); None where a number is counted from the clock in words
+    that give no direction ("2 h from UTC": not UTC). Since layouts35, which found both read as UTC.
+    """
+    relative = _RELATIVE_OFFSET.search(value)
+    if relative:
+        number, unit, direction = relative.groups()
+        hours = float(number) / 60 if unit and unit.startswith("min") else float(number)
+        hours = -hours if direction.startswith(("behind", "west")) else hours
+        return hours if abs(hours) <= 14 else None
+    if _COUNTED_FROM.search(value.lower()):
+        return None
+    return column_utc_offset(value)
 
 
 def _clock_value(value: str) -> float | None:

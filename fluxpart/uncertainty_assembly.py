@@ -134,7 +134,7 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
     def refit(fit, driver):
         """Reco of `fit` (partition_nighttime's arguments) on `driver`; None if it fails."""
         try:
-            return fit(index, nee_measured, nee_filled, timeseries[driver].to_numpy(dtype=float),
+            return fit(index, nee_measured, nee_filled, measured_in_range(timeseries, driver),
                        timeseries[f"{driver}_filled"].to_numpy(dtype=float), is_night,
                        respiration_driver=driver, **settings)
         except FluxpartError:
@@ -201,6 +201,36 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
     notes.extend(gap_sides.state_change_notes(index, nee_filled, *sides, interval,
                                               annual["nee_uncertainty_gapfill"], year_keys))
     return tables[0], tables[1], annual, gapfill_model, notes
+
+
+def measured_in_range(timeseries: pd.DataFrame, driver: str) -> np.ndarray:
+    """A driver's measured values, NaN where screening found them outside its range.
+
+    Parameters
+    ----------
+    timeseries : pandas.DataFrame
+        The central run's record: ``<driver>`` as read and ``<driver>_out_of_range``
+        (:func:`fluxpart.screening.range_flags`).
+    driver : str
+        ``"tair"`` or ``"tsoil"``.
+
+    Returns
+    -------
+    numpy.ndarray
+        The values [°C]. A missing code left undeclared (-7999 in a soil temperature)
+        is no measurement, as screening holds; the other temperature's refit on it
+        failed and the temperature part of the uncertainty was NaN without a word
+        (round layouts35).
+
+    References
+    ----------
+    Plausible ranges: :mod:`fluxpart.variables` (each with its source).
+    """
+    values = timeseries[driver].to_numpy(dtype=float)
+    flag = f"{driver}_out_of_range"
+    if flag in timeseries.columns:
+        values = np.where(timeseries[flag].to_numpy(dtype=bool), np.nan, values)
+    return values
 
 
 def scenario_spread(annual, outcomes, index, interval, year_keys) -> pd.DataFrame:

@@ -1035,7 +1035,8 @@ def test_optional_column_lacking_in_one_of_several_files_reads_as_missing(tmp_pa
     assert len(warning) == 1
     assert re.search(r"'t_soil' is in '.*a.csv' but not in '.*b.csv', whose unmapped columns "
                      r"are 'rel_hum'; its 80 record\(s\) there are read as missing tsoil .*; "
-                     r"if one of those columns is it renamed, give it the same name", warning[0])
+                     r"if one of those columns is it renamed, list its name in "
+                     r"\[input.other_names\] tsoil, or give it the same name", warning[0])
     assert report.to_dict()["absent_column_records"] == {"tsoil": 80}
     assert re.search(r"not in every file tsoil <- t_soil: absent from '.*b.csv', 80 record",
                      str(report))
@@ -1051,8 +1052,10 @@ def test_required_or_renamed_column_lacking_in_one_file_is_refused_accurately(tm
     mapping = MAPPING | {"tair": "air_temp_c"}
     first = _write(tmp_path / "a.csv", records.iloc[:120])
     for column, extra, fix in (("co2_flux", {}, r"nee is needed in every record: if one of "
-                                                r"them is the same quantity renamed, give it "
-                                                r"the same name in every file \(in a copy\); "
+                                                r"them is the same quantity renamed, list "
+                                                r"its name in \[input.other_names\] \(nee = "
+                                                r"\[.*\]\) or give it the same name in every "
+                                                r"file \(in a copy\); "
                                                 r"else add the column to '.*b.csv' \(empty "
                                                 r"cells where there is no value\)$"),
                                ("qc", {"nee_flag": "qc"}, r"records without the site's flag "
