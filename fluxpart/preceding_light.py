@@ -159,8 +159,9 @@ def light_dependence(nee, is_night, light, temperatures, index) -> pd.DataFrame:
     """
     nights = _night_means(nee, is_night, light, temperatures, index)
     rows = {}
-    for year, part in nights.groupby("year", sort=True):
-        tested = _year_test(part, len(temperatures))
+    for year in np.unique(nights["year"]):
+        inside = nights["year"] == year
+        tested = _year_test({name: values[inside] for name, values in nights.items()})
         if tested is not None:
             rows[int(year)] = tested
     table = pd.DataFrame.from_dict(rows, orient="index",
@@ -198,30 +199,33 @@ def _evening_dates(index) -> pd.DatetimeIndex:
     return (index - pd.Timedelta(hours=12)).normalize()
 
 
-def _night_means(nee, is_night, light, temperatures, index) -> pd.DataFrame:
-    """Per night with a measured record: year, day of year, the means of NEE, the light's
-    anomaly and the temperatures over its measured records with every driver."""
+def _night_means(nee, is_night, light, temperatures, index) -> dict:
+    """Per night with a measured record, in order: ``year``, ``doy`` (of its evening),
+    ``nee`` and ``t0``, ``t1``, ... (the means over its measured records with every
+    driver) and ``anomaly`` (its light's anomaly from the fortnight's), as arrays."""
     nee = np.asarray(nee, dtype=float)
     light = np.asarray(light, dtype=float)
+    night = np.asarray(is_night, dtype=bool)
     drivers = [np.asarray(t, dtype=float) for t in temperatures]
-    usable = np.asarray(is_night, dtype=bool) & ~np.isnan(nee) & ~np.isnan(light)
+    usable = night & ~np.isnan(nee) & ~np.isnan(light)
     for t in drivers:
         usable &= ~np.isnan(t)
+    if not usable.any():
+        return {name: np.empty(0) for name in ("year", "doy", "nee", "anomaly",
+                                               *(f"t{j}" for j in range(len(drivers))))}
     evening = _evening_dates(index)
     day = ((evening - evening[0]).days).to_numpy()
-    # the light of a night: its value at the night's first usable record's day, as a
-    # daily series with its running mean over the fortnight
-    night_light = _daily_means(light, day, np.asarray(is_night, dtype=bool) & ~np.isnan(light))
+    # the light of a night: the mean of its night records' preceding 24 h, and the
+    # fortnight's running mean of that daily series
+    night_light = _daily_means(light, day, night & ~np.isnan(light))
     anomaly = night_light - _centred_mean(night_light, _ANOMALY_HALF_DAYS)
-    frame = pd.DataFrame({"day": day[usable], "nee": nee[usable],
-                          **{f"t{j}": t[usable] for j, t in enumerate(drivers)}})
-    means = frame.groupby("day", sort=True).mean()
-    days = means.index.to_numpy()
+    count = np.bincount(day[usable], minlength=night_light.size)
+    days = np.flatnonzero(count)
+    days = days[~np.isnan(anomaly[days])]
     dates = evening[0] + pd.to_timedelta(days, unit="D")
-    means["anomaly"] = anomaly[days]
-    means["year"] = dates.year.to_numpy()
-    means["doy"] = dates.day_of_year.to_numpy()
-    return means[~np.isnan(means["anomaly"].to_numpy())]
+    return {"year": dates.year.to_numpy(), "doy": dates.day_of_year.to_numpy(),
+            "nee": _daily_means(nee, day, usable)[days], "anomaly": anomaly[days],
+            **{f"t{j}": _daily_means(t, day, usable)[days] for j, t in enumerate(drivers)}}
 
 
 def _daily_means(values, day, usable) -> np.ndarray:
@@ -245,38 +249,44 @@ def _centred_mean(values, half_width) -> np.ndarray:
         return (total[high] - total[low]) / (count[high] - count[low])
 
 
-def _year_test(nights, n_temperatures):
-    """(nights, slope per 100 W m-2, t, one-sided p) of one year's nights, or None."""
-    block = np.minimum((nights["doy"].to_numpy() - 1) // BLOCK_DAYS, 365 // BLOCK_DAYS - 1)
-    sizes = pd.Series(block).value_counts()
-    kept = np.isin(block, sizes.index[sizes >= MIN_BLOCK_NIGHTS].to_numpy())
+def _year_test(nights):
+    """(nights, slope per 100 W m-2, t, one-sided p) of one year's nights, or None.
+
+    The block columns are block-diagonal, so the slope is that of the nights' NEE on the
+    anomaly after both are regressed on each block's own columns (Frisch–Waugh–Lovell).
+    """
+    block = np.minimum((nights["doy"] - 1) // BLOCK_DAYS, 365 // BLOCK_DAYS - 1)
+    blocks, sizes = np.unique(block, return_counts=True)
+    kept = np.isin(block, blocks[sizes >= MIN_BLOCK_NIGHTS])
     if kept.sum() < MIN_NIGHTS:
         return None
-    nights, block = nights[kept], block[kept]
-    blocks = np.unique(block)
-    local = [np.ones(len(nights)), nights["doy"].to_numpy(dtype=float),
-             *(nights[f"t{j}"].to_numpy() for j in range(n_temperatures))]
-    columns = [np.where(block == b, x - (x[block == b].mean() if k else 0.0), 0.0)
-               for b in blocks for k, x in enumerate(local)]
-    anomaly = nights["anomaly"].to_numpy() / 100.0
-    design = np.column_stack([*columns, anomaly])
-    y = nights["nee"].to_numpy()
-    coefficients, _, rank, _ = np.linalg.lstsq(design, y, rcond=None)
-    residual = y - design @ coefficients
-    dof = len(y) - rank
-    if dof < 10:
+    temperatures = sorted(name for name in nights if name.startswith("t"))
+    y = nights["nee"][kept]
+    anomaly = nights["anomaly"][kept] / 100.0
+    local = np.column_stack([np.ones(y.size), nights["doy"][kept].astype(float),
+                             *(nights[name][kept] for name in temperatures)])
+    block = block[kept]
+    y_left, x_left, rank = np.empty_like(y), np.empty_like(y), 0
+    for b in np.unique(block):
+        inside = block == b
+        columns = local[inside]
+        columns[:, 1:] -= columns[:, 1:].mean(axis=0)
+        fitted, _, block_rank, _ = np.linalg.lstsq(
+            columns, np.column_stack([y[inside], anomaly[inside]]), rcond=None)
+        y_left[inside], x_left[inside] = (np.column_stack([y[inside], anomaly[inside]])
+                                          - columns @ fitted).T
+        rank += block_rank
+    spread = float(x_left @ x_left)
+    dof = y.size - rank - 1
+    if dof < 10 or spread <= 0.0:
         return None
-    # the slope's variance: the anomaly's part not explained by the blocks' columns
-    local_fit = np.linalg.lstsq(design[:, :-1], anomaly, rcond=None)[0]
-    own = anomaly - design[:, :-1] @ local_fit
-    spread = float(own @ own)
-    if spread <= 0.0:
-        return None
-    serial = _lag_one(residual) * _lag_one(own)
+    slope = float(x_left @ y_left) / spread
+    residual = y_left - slope * x_left
+    serial = _lag_one(residual) * _lag_one(x_left)
     inflation = (1 + serial) / (1 - serial) if serial > 0 else 1.0
     variance = float(residual @ residual) / dof / spread * inflation
-    t = coefficients[-1] / np.sqrt(variance)
-    return len(y), float(coefficients[-1]), float(t), _student_upper(t, dof / inflation)
+    t = slope / np.sqrt(variance)
+    return int(y.size), slope, float(t), _student_upper(t, dof / inflation)
 
 
 def _student_upper(t: float, dof: float) -> float:

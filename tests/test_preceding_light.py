@@ -97,19 +97,19 @@ def test_the_slope_is_ordinary_least_squares_of_statsmodels(rng):
     # reference: statsmodels OLS on the same night means and block columns
     index, nee, is_night, light, tair = _year(rng, 0.5)
     nights = preceding_light._night_means(nee, is_night, light, [tair], index)
-    nights = nights[nights["year"] == 2021]
-    got = preceding_light._year_test(nights, 1)
-    block = np.minimum((nights["doy"].to_numpy() - 1) // preceding_light.BLOCK_DAYS,
+    nights = {name: values[nights["year"] == 2021] for name, values in nights.items()}
+    got = preceding_light._year_test(nights)
+    block = np.minimum((nights["doy"] - 1) // preceding_light.BLOCK_DAYS,
                        365 // preceding_light.BLOCK_DAYS - 1)
     columns = {}
     for b in np.unique(block):
         inside = (block == b).astype(float)
         columns[f"c{b}"] = inside
-        columns[f"d{b}"] = inside * nights["doy"].to_numpy()
-        columns[f"t{b}"] = inside * nights["t0"].to_numpy()
-    design = pd.DataFrame(columns, index=nights.index)
-    design["anomaly"] = nights["anomaly"].to_numpy() / 100
-    fit = sm.OLS(nights["nee"].to_numpy(), design.to_numpy()).fit()
+        columns[f"d{b}"] = inside * nights["doy"]
+        columns[f"t{b}"] = inside * nights["t0"]
+    design = pd.DataFrame(columns)
+    design["anomaly"] = nights["anomaly"] / 100
+    fit = sm.OLS(nights["nee"], design.to_numpy()).fit()
     assert got[1] == pytest.approx(fit.params[-1], rel=1e-8)
     # without serial correlation the t would be OLS's; the inflation only lowers it
     assert abs(got[2]) <= abs(fit.tvalues[-1]) * (1 + 1e-9)
