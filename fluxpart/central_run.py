@@ -198,12 +198,16 @@ class CentralStage(NamedTuple):
     warnings : list of str
         Events a fill crossed, pieces without a window of their own, the daytime E0
         fallback, in this order.
+    night_light : list of dict
+        The central fill's yearly tests of night NEE on the preceding day's light
+        (:func:`fluxpart.preceding_light.test_records`; empty where not tested).
     """
 
     outcomes: dict
     form: object
     day_evidence: object
     warnings: list
+    night_light: list = []
 
 
 def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
@@ -257,4 +261,5 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
             f"{fallback_e0_text(day.parameters, fell_back, night.e0_annual)} was used there, "
             "flagged 'fallback' in the daytime parameter table, so the two methods are not "
             "independent in their E0")
-    return CentralStage(outcomes, form, day_evidence, warnings)
+    return CentralStage(outcomes, form, day_evidence, warnings,
+                        filled.attrs.pop("night_light_tests", []))

@@ -239,6 +239,10 @@ _SLOPE_RIDGE = 0.01
 # gap (same time window); see local_linear_correction
 _SLOPE_TOLERANCES = 3.0
 ESTIMATES = ("local_linear", "donor_mean")
+
+# the drivers' column of the preceding day's light, a regressor of the night fills where
+# given (fluxpart.preceding_light.COLUMN); its tolerance is that of Rg
+NIGHT_LIGHT_COLUMN = "rg_day_before"
 # Tair and VPD correct the radiation step's fills only within windows of ±7 days (the
 # flow chart's quality B): within a week the canopy is the same, across months a slope
 # on temperature carries the season's change of the canopy
@@ -1277,7 +1281,10 @@ def fill_marginal(target, drivers, index, *, is_night=None, donors="separate_day
         ``vpd`` [hPa], NaN where unavailable; optionally ``tsoil`` [°C], which chooses
         no donor: with separate day and night donors and ``estimate =
         "local_linear"``, the night gaps' fills are also moved by the flux's slope on it
-        (new in 0.22.0; Notes).
+        (new in 0.22.0; Notes); optionally ``rg_day_before`` (:data:`NIGHT_LIGHT_COLUMN`),
+        the preceding 24 h mean Rg [W m-2], a regressor of the night fills alike (its
+        tolerance that of Rg; NaN where it is not to act; the pipeline gives it only in
+        the years whose measured nights show it, :mod:`fluxpart.preceding_light`).
     index : pandas.DatetimeIndex
         Regular 30- or 60-min time axis, stamps at interval start; may span years.
     is_night : array_like of bool, optional
@@ -1524,9 +1531,13 @@ def _marginal_columns(target, drivers, index, *, is_night=None, donors="separate
         all_conditions.append(condition)
         radiation_conditions.append(condition)
     regressors = list(zip((tair, vpd), tolerances[1:], strict=True))
-    # soil temperature: a regressor of the night fills where the drivers carry it
-    night_regressors = [] if "tsoil" not in drivers.columns else [
-        (_as_values(drivers["tsoil"], "drivers['tsoil']", index), tolerances[1])]
+    # soil temperature and the preceding day's light: regressors of the night fills
+    # where the drivers carry them
+    night_regressors = [
+        (_as_values(drivers[name], f"drivers[{name!r}]", index), tolerance)
+        for name, tolerance in (("tsoil", tolerances[1]),
+                                (NIGHT_LIGHT_COLUMN, _check_setting("rg_tolerance", rg_tolerance)))
+        if name in drivers.columns]
 
     def fill(piece, want):
         def cut(pairs):

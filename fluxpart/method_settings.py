@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from . import gapfill
+from . import gapfill, preceding_light
 from .partition import temperature_choice
 
 #: ``Config.gapfill_donors`` value: separate day and night donors, and a night gap in
@@ -33,7 +33,9 @@ def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, value
         Measured NEE [µmol m-2 s-1], NaN where rejected or missing.
     conditions : pandas.DataFrame
         The drivers compared (``rg`` [W m-2], ``tair`` [°C], ``vpd`` [hPa], ...; a
-        ``clearness`` column where ``gapfill_clearness_tolerance`` is set).
+        ``clearness`` column where ``gapfill_clearness_tolerance`` is set; the preceding
+        day's light where ``gapfill_night_light = "tested"``, kept in the years whose
+        measured nights show it, :func:`fluxpart.preceding_light.gated_conditions`).
     index : pandas.DatetimeIndex
         The record's stamps.
     is_night : numpy.ndarray of bool
@@ -54,7 +56,9 @@ def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, value
     -------
     pandas.DataFrame or numpy.ndarray
         :func:`fluxpart.gapfill.fill_marginal`'s table, or the filled values
-        [µmol m-2 s-1].
+        [µmol m-2 s-1]. The table's ``attrs["night_light_tests"]``: the years' tests of
+        the preceding day's light (:func:`fluxpart.preceding_light.test_records`) where
+        the conditions carry it.
 
     References
     ----------
@@ -63,8 +67,11 @@ def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, value
     (Appendix A: marginal distribution sampling).
     """
     fill = gapfill.fill_marginal_values if values_only else gapfill.fill_marginal
+    # the preceding day's light, in the years whose own measured nights show it
+    conditions, light_tests = preceding_light.gated_conditions(conditions, nee_measured,
+                                                               is_night, index)
     dark_first = config.gapfill_donors == DARK_FIRST
-    return fill(
+    filled = fill(
         nee_measured, conditions, index, is_night=is_night,
         donors="separate_day_night" if dark_first else config.gapfill_donors,
         rg_tolerance=config.rg_tolerance, tair_tolerance=config.tair_tolerance,
@@ -75,6 +82,9 @@ def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, value
         clearness_tolerance=config.gapfill_clearness_tolerance,
         estimate=config.gapfill_estimate, breaks=gapfill.event_breaks(index, config.events),
         sun_up=sun_up if dark_first else None)
+    if not values_only and light_tests is not None:
+        filled.attrs["night_light_tests"] = preceding_light.test_records(light_tests)
+    return filled
 
 
 def nighttime_settings(config, rg, index, nearest_year=False) -> dict:

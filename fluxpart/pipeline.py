@@ -254,7 +254,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
               "screening_counts": result_tables.screening_counts(checked.screens.counts, reason)}
     return result_tables.result(
         site, config, interval, tables, parameters, warnings,
-        result_tables.run_provenance(provenance, checked, driver, central.form))
+        result_tables.run_provenance(provenance, checked, driver, central.form,
+                                     central.night_light))
 
 
 def process_site_config(path, config: Config | None = None, *, progress=None,

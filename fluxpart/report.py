@@ -725,6 +725,11 @@ def _fill_estimate(config: dict, soil: bool = False) -> str:
     if config.get("gapfill_estimate", "donor_mean") == "local_linear":
         night = (" (for night gaps also on soil temperature, which chooses no donor: calm "
                  "nights cool the air, not the soil)" if soil else "")
+        if config.get("gapfill_night_light") == "tested":
+            night += (" (for night gaps, in the years whose measured nights respired more "
+                      "after sunnier days at the same temperature, a one-sided test at 1 %, "
+                      "also on the preceding 24 h mean Rg: the calm nights the u* filter "
+                      "removes follow sunny days)")
         return ("Each NEE fill of the similarity steps is the similar records' mean moved by "
                 "the flux's local slope on Rg, Tair and VPD" + night + " times their offset "
                 "from the gap (a local-linear estimate, our refinement: a gap at the edge of "

@@ -182,7 +182,7 @@ def screening_counts(counts, reason) -> pd.Series:
     return counts
 
 
-def run_provenance(provenance, checked, driver, form) -> dict:
+def run_provenance(provenance, checked, driver, form, night_light=()) -> dict:
     """The run's provenance: the caller's, then the screening, clock, preflight and choices.
 
     Parameters
@@ -195,6 +195,9 @@ def run_provenance(provenance, checked, driver, form) -> dict:
         The respiration temperature and its choice.
     form : fluxpart.partition.respiration_form.FormAverage
         The respiration forms' average.
+    night_light : list of dict, optional
+        The central fill's yearly tests of night NEE on the preceding day's light
+        (:func:`fluxpart.preceding_light.test_records`), as ``"night_fill_light"``.
 
     Returns
     -------
@@ -206,6 +209,7 @@ def run_provenance(provenance, checked, driver, form) -> dict:
             "respiration_driver": ({"setting": driver.temperature} if driver.choice is None
                                    else driver.choice.to_dict()),
             "respiration_form": form.to_dict(),
+            "night_fill_light": list(night_light),
             "uncertainty": {"confidence": uncertainty.CONFIDENCE,
                             "not_quantified": list(uncertainty.NOT_QUANTIFIED),
                             "checked": uncertainty.CALIBRATION_CHECK}}

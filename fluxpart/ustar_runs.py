@@ -22,7 +22,15 @@ from typing import NamedTuple
 import numpy as np
 import pandas as pd
 
-from . import gapfill, method_failure, night_uptake, screening, storage_check, uncertainty
+from . import (
+    gapfill,
+    method_failure,
+    night_uptake,
+    preceding_light,
+    screening,
+    storage_check,
+    uncertainty,
+)
 from .errors import InsufficientDataError
 from .method_settings import event_cut, fill_nee, nighttime_settings, respiration_temperature
 from .partition import daytime, nighttime
@@ -85,6 +93,11 @@ def run_inputs(frame, screened, is_night, potential_radiation, config) -> RunInp
     if config.gapfill_clearness_tolerance > 0:
         conditions["clearness"] = gapfill.clearness_index(
             conditions["rg"].to_numpy(), potential_radiation)
+    if config.gapfill_night_light == "tested":
+        step = (screened.index[1] - screened.index[0]) if len(screened.index) > 1 else None
+        per_day = 1 if step is None else int(round(pd.Timedelta(days=1) / step))
+        conditions[preceding_light.COLUMN] = preceding_light.preceding_day_rg(
+            conditions["rg"].to_numpy(), per_day)
     # the sun above the horizon for part of the record, as solar.night_mask's epsilon
     sun_up = np.asarray(potential_radiation, dtype=np.float64) > 1e-6
     return RunInputs(frame, screened, filled_drivers, conditions, is_night, sun_up)
