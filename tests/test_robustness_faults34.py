@@ -114,3 +114,43 @@ def test_a_table_whose_frame_is_broken_is_named_by_what_is_wrong(tmp_path):
     lying.write_bytes(data[:-8] + (len(data)).to_bytes(4, "little") + b"PAR1")
     with pytest.raises(InputFileError, match=f"footer is said to take {len(data)} bytes"):
         store.read_table(lying)
+
+
+def test_report_through_a_link_locks_the_folder_the_link_leads_to(written_demo, tmp_path,
+                                                                  monkeypatch):
+    """`report` asked whether the folder holding the *link* to a result was writable, but
+    its lock file goes beside the folder the link leads to (resultdir.lock_file): a link
+    in a read-only folder to a writable result wrote the page without the lock (a run
+    replacing the result meanwhile would leave a page of the result before), and a link
+    in a writable folder to a result on a read-only mount failed on the lock file with
+    "choose a writable output folder" instead of the read-only report folder's line
+    naming --out (faults34). Here the link's folder is the read-only one."""
+    import argparse
+
+    from fluxpart import report
+    from fluxpart.resultdir import lock_file
+
+    _, folder = written_demo
+    link_folder = tmp_path / "shared"
+    link_folder.mkdir()
+    link = link_folder / "result"
+    link.symlink_to(folder, target_is_directory=True)
+    real_access = os.access
+
+    def access(path, mode, *args, **kwargs):     # the link's folder read-only
+        if os.path.abspath(path) == str(link_folder) and mode & os.W_OK:
+            return False
+        return real_access(path, mode, *args, **kwargs)
+
+    held = []
+
+    def build_report(directory, out=None, progress=None):
+        held.append(lock_file(folder).exists())
+        return Path(directory) / "report" / "report.html"
+
+    monkeypatch.setattr(report.os, "access", access)
+    monkeypatch.setattr(report, "build_report", build_report)
+    args = argparse.Namespace(directory=str(link), out=None, quiet=True)
+    assert report.command_report(args) == 0
+    assert held == [True]
+    assert not lock_file(folder).exists()
