@@ -154,3 +154,29 @@ def test_report_through_a_link_locks_the_folder_the_link_leads_to(written_demo, 
     assert report.command_report(args) == 0
     assert held == [True]
     assert not lock_file(folder).exists()
+
+
+@pytest.mark.parametrize(("code", "whose"), [("EMFILE", "this process's, ulimit -n"),
+                                             ("ENFILE", "the system's")])
+def test_too_many_open_files_is_one_line(tmp_path, monkeypatch, capsys, code, whose):
+    """Under `ulimit -n 5` `verify` of the grassland example ended in a 33-line traceback
+    from the clean-up of its scratch folder (exit 1, which for verify reads "NOT
+    reproduced") and `report` in a 56-line one opening matplotlib's font (exit 1). EMFILE
+    is the process's limit on open files, ENFILE the system's (errno(3), open(2) (m)):
+    now one line naming the limit, exit 2 (faults34)."""
+    import errno
+
+    from fluxpart import cli
+
+    def refused(args):
+        number = getattr(errno, code)
+        raise OSError(number, os.strerror(number),
+                      str(tmp_path / "mpl-data" / "fonts" / "ttf" / "DejaVuSans.ttf"))
+
+    monkeypatch.setattr(cli, "_command_report", refused)
+    (tmp_path / "result").mkdir()
+    status = cli.main(["report", str(tmp_path / "result")])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert status == 2
+    assert len(err) == 1 and err[0].startswith("error: too many open files"), err
+    assert whose in err[0] and "raise the limit" in err[0]
