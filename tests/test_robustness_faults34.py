@@ -11,6 +11,7 @@ import sys
 from pathlib import Path
 
 import pytest
+from bundles import RUN_WRITING_ONE_TABLE
 
 ROOT = Path(__file__).resolve().parent.parent
 
@@ -30,12 +31,7 @@ _CPU_LIMITED_RUN = (
     "    os.kill(os.getpid(), signal.SIGXCPU)\n"
     "    raise AssertionError('SIGXCPU was not raised as a stop')\n"
     "resultdir._swap_in = out_of_cpu\n"
-    "def command(args):\n"
-    "    resultdir.write_folder(args.out, {'annual': pd.DataFrame({'nee': [1.0]})},\n"
-    "                           site={}, config={}, seed=0, provenance={})\n"
-    "    return 0\n"
-    "cli._command_run = command\n"
-    "sys.exit(cli.main(['run', 'site.toml', '--out', sys.argv[1]]))\n")
+    + RUN_WRITING_ONE_TABLE)
 
 
 @pytest.mark.skipif(not hasattr(signal, "SIGXCPU"), reason="POSIX signal")
