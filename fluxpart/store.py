@@ -652,9 +652,12 @@ def _frame_problem(handle) -> str:
     handle.seek(size - _PARQUET_TAIL)
     tail = handle.read(_PARQUET_TAIL)
     handle.seek(0)
-    if head != _PARQUET_MARK or tail[4:] != _PARQUET_MARK:
-        return (f"{size} bytes without Parquet's mark {_PARQUET_MARK.decode()} at both its "
-                "start and its end")
+    missing = [end for end, mark in (("start", head), ("end", tail[4:]))
+               if mark != _PARQUET_MARK]
+    if missing:
+        return (f"{size} bytes without Parquet's mark {_PARQUET_MARK.decode()} at its "
+                f"{' and its '.join(missing)}"
+                + (" (cut short?)" if missing == ["end"] else ""))
     footer = int.from_bytes(tail[:4], "little")
     if footer > size - least:
         return f"its footer is said to take {footer} bytes of a file of {size}"

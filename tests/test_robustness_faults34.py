@@ -85,7 +85,8 @@ def test_a_large_file_in_place_of_a_table_is_named_damaged_without_reading_it(tm
     done = subprocess.run([sys.executable, "-c", _READ_UNDER_LIMIT, str(big)], env=env,
                           capture_output=True, text=True, timeout=120)
     assert done.stdout.startswith("InputFileError:"), done.stdout + done.stderr
-    assert "2147483648 bytes without Parquet's mark PAR1" in done.stdout
+    assert ("2147483648 bytes without Parquet's mark PAR1 at its start and its end"
+            in done.stdout)
     assert "the file is damaged" in done.stdout
 
 
@@ -106,6 +107,10 @@ def test_a_table_whose_frame_is_broken_is_named_by_what_is_wrong(tmp_path):
     short.write_bytes(b"PAR1PAR1")
     with pytest.raises(InputFileError, match="8 bytes, fewer than the 12"):
         store.read_table(short)
+    cut = tmp_path / "cut.parquet"
+    cut.write_bytes(data[:-100])
+    with pytest.raises(InputFileError, match=r"PAR1 at its end \(cut short\?\)"):
+        store.read_table(cut)
     lying = tmp_path / "lying.parquet"
     lying.write_bytes(data[:-8] + (len(data)).to_bytes(4, "little") + b"PAR1")
     with pytest.raises(InputFileError, match=f"footer is said to take {len(data)} bytes"):
