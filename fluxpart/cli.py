@@ -592,7 +592,7 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
-#: What a command stopped by Ctrl-C, SIGTERM or SIGHUP leaves behind, by command ('' for the rest).
+#: What a command stopped by Ctrl-C, SIGTERM, SIGHUP or SIGXCPU leaves behind, by command ('' for the rest).
 _AFTER_STOP = {
     "": "an output folder holds its earlier content or a complete new result, never a mix",
     "batch": "each site's result folder holds its earlier content or a complete new result, "
@@ -628,7 +628,15 @@ class _Terminated(BaseException):
         self.signum = signum
 
 
+#: The CPU-time limit's signal (POSIX; None elsewhere): sent again every CPU second past
+#: the soft limit until the hard limit's SIGKILL (setrlimit(2), RLIMIT_CPU (m)).
+_CPU_LIMIT = getattr(signal, "SIGXCPU", None)
+
+
 def _raise_terminated(signum, frame):
+    if signum == _CPU_LIMIT:
+        # the repeats would interrupt the unwinding (the removal of a staging folder)
+        signal.signal(signum, signal.SIG_IGN)
     raise _Terminated(signum)
 
 
@@ -636,21 +644,37 @@ def _raise_terminated(signum, frame):
 _STOP_NAMES = {signal.SIGTERM: "terminated (SIGTERM)"}
 if hasattr(signal, "SIGHUP"):          # POSIX only
     _STOP_NAMES[signal.SIGHUP] = "hung up (SIGHUP: the terminal or session closed)"
+if _CPU_LIMIT is not None:
+    _STOP_NAMES[_CPU_LIMIT] = ("out of CPU time (SIGXCPU: the process's CPU-time limit, "
+                               "ulimit -t or a batch job's, was reached)")
+
+
+def _open_file_limit() -> str:
+    """This process's soft limit on open files (``ulimit -n``), as text; "?" where unknown."""
+    try:
+        import resource
+    except ImportError:         # not POSIX
+        return "?"
+    soft = resource.getrlimit(resource.RLIMIT_NOFILE)[0]
+    return "unlimited" if soft == resource.RLIM_INFINITY else str(soft)
 
 
 def _install_stop_handlers() -> dict:
-    """Handle SIGTERM, and SIGHUP where it has its default action, as :class:`_Terminated`.
+    """Handle SIGTERM, and SIGHUP and SIGXCPU where they have their default action, as
+    :class:`_Terminated`.
 
     SIGHUP's default action ends the process outright, like ``kill -9``: a terminal or SSH
     session closed during ``run`` or ``report`` left the staging folder, and a report's lies
     inside the result folder, which then failed its manifest check in ``verify``, ``load``
-    and ``diff``. A SIGHUP already ignored (``nohup``, ``disown`` under some shells) stays
+    and ``diff``. SIGXCPU's (a soft CPU-time limit: ``ulimit -St``, a scheduler's CPU
+    limit) did the same with no line and a core dump where the core limit allows
+    (faults34). A signal already ignored (``nohup``, ``disown`` under some shells) stays
     ignored. Returns the handlers replaced, to be put back.
     """
     replaced = {signal.SIGTERM: signal.signal(signal.SIGTERM, _raise_terminated)}
-    hangup = getattr(signal, "SIGHUP", None)
-    if hangup is not None and signal.getsignal(hangup) is signal.SIG_DFL:
-        replaced[hangup] = signal.signal(hangup, _raise_terminated)
+    for signum in (getattr(signal, "SIGHUP", None), _CPU_LIMIT):
+        if signum is not None and signal.getsignal(signum) is signal.SIG_DFL:
+            replaced[signum] = signal.signal(signum, _raise_terminated)
     return replaced
 
 
@@ -944,6 +968,16 @@ def main(argv=None) -> int:
                   "process: ulimit -v, a container's or a batch job's); "
                   f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
                   "memory", file=sys.stderr)
+            return 2
+        if error.errno in (errno.EMFILE, errno.ENFILE):
+            # a limit on open files met outside the places that name it (the clean-up of
+            # verify's scratch folder under ulimit -n 5: a 33-line traceback, exit 1, which
+            # for verify reads "NOT reproduced", faults34)
+            whose = ("the system's" if error.errno == errno.ENFILE else
+                     f"this process's, ulimit -n {_open_file_limit()}")
+            print(f"error: too many open files ({error.strerror}; the limit is {whose}); "
+                  f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: raise the limit "
+                  "(ulimit -n 1024) and run again", file=sys.stderr)
             return 2
         if error.errno == errno.ELOOP:
             print(f"error: the path {str(error.filename or '')!r} leads through a symbolic "

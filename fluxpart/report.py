@@ -63,6 +63,7 @@ from .resultdir import (
     clean_leftovers,
     folder_identity,
     folder_lock,
+    lock_file,
     make_staging,
     read_folder,
     replace_refusal,
@@ -1362,7 +1363,9 @@ def command_report(args) -> int:
         inside = out is None or directory.absolute().resolve() in (
             Path(out).absolute().resolve(), *Path(out).absolute().resolve().parents)
         locked = directory if inside else Path(out)
-        parent = locked.absolute().parent
+        # where the lock file goes: beside the folder a symbolic link leads to, not beside
+        # the link (a link to a result on a read-only mount failed on the lock, faults34)
+        parent = lock_file(locked).parent
         writable = parent.is_dir() and os.access(parent, os.W_OK)
         with (folder_lock(locked, DEFAULT_LOCK_TIMEOUT, remove=True) if writable
               else nullcontext()), \

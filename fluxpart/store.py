@@ -188,7 +188,7 @@ def shortage(path, error: Exception) -> ResourceShortage | None:
         "not judged")
 
 
-def damaged_table(path, error: Exception) -> InputFileError:
+def damaged_table(path, error: Exception | str) -> InputFileError:
     """The error for a result table pyarrow cannot decode: cut short, a byte changed.
 
     pyarrow's text may span lines (a footer's Thrift that does not decode ends in a line
@@ -588,7 +588,8 @@ def arrow_table(path, columns=None) -> pa.Table:
                              "rerun to rewrite the folder")
     try:
         with open(path, "rb") as handle:
-            data = handle.read()
+            problem = _frame_problem(handle)
+            data = b"" if problem else handle.read()
     except MemoryError as error:
         raise shortage(path, error) from None
     except OSError as error:
@@ -603,11 +604,64 @@ def arrow_table(path, columns=None) -> pa.Table:
             raise InputFileError(f"result table {str(path)!r} {what}: rerun to rewrite the "
                                  "folder") from None
         raise shortage(path, error) or unreadable_table(path, error) from None
+    if problem:
+        raise damaged_table(path, problem)
     try:
         with pq.ParquetFile(pa.BufferReader(data)) as opened:
             return opened.read(columns=columns, use_threads=False)
     except (pa.ArrowException, ValueError, OSError, MemoryError) as error:
         raise shortage(path, error) or damaged_table(path, error) from None
+
+
+#: The marks a Parquet file begins and ends with, and the bytes around its footer: the
+#: footer's length (4 bytes, little-endian) and the closing mark.
+_PARQUET_MARK = b"PAR1"
+_PARQUET_TAIL = 8
+
+
+def _frame_problem(handle) -> str:
+    """What shows an open file is no whole Parquet file, from its first and last bytes.
+
+    Checked before the whole file is read into memory (:func:`arrow_table`): a table
+    replaced by a large file of something else (a sparse file, a disk image, a log) was
+    read whole before pyarrow found no footer, 3 GB of memory and 15 s for a 3 GB file,
+    and under a memory limit it was named as a shortage of memory, not as damaged
+    (faults34). A file that passes may still be damaged inside; pyarrow judges that.
+
+    Parameters
+    ----------
+    handle : binary file
+        Open for reading; left at its start.
+
+    Returns
+    -------
+    str
+        The problem in words; empty when the file is framed as Parquet.
+
+    References
+    ----------
+    Apache Parquet, "File Format" (parquet.apache.org/docs/file-format): the 4-byte magic
+    number ``PAR1`` at the start and the end, the footer's length in 4 bytes
+    little-endian just before the closing one (m).
+    """
+    size = os.fstat(handle.fileno()).st_size
+    least = len(_PARQUET_MARK) + _PARQUET_TAIL
+    if size < least:
+        return f"{size} bytes, fewer than the {least} of the smallest Parquet frame"
+    head = handle.read(len(_PARQUET_MARK))
+    handle.seek(size - _PARQUET_TAIL)
+    tail = handle.read(_PARQUET_TAIL)
+    handle.seek(0)
+    missing = [end for end, mark in (("start", head), ("end", tail[4:]))
+               if mark != _PARQUET_MARK]
+    if missing:
+        return (f"{size} bytes without Parquet's mark {_PARQUET_MARK.decode()} at its "
+                f"{' and its '.join(missing)}"
+                + (" (cut short?)" if missing == ["end"] else ""))
+    footer = int.from_bytes(tail[:4], "little")
+    if footer > size - least:
+        return f"its footer is said to take {footer} bytes of a file of {size}"
+    return ""
 
 
 def read_table(path) -> pd.DataFrame:

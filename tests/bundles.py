@@ -23,3 +23,16 @@ def make_bundle(folder: Path, records: int = SHORT_RECORDS, extra: str = "",
              + extra)
     (folder / name).write_text(text)
     return folder / name
+
+
+#: The end of a child script (Python source) that runs ``fluxpart run --out sys.argv[1]``
+#: writing one tiny table through ``resultdir.write_folder``; the script before it imports
+#: ``sys``, ``pandas as pd``, ``fluxpart.cli as cli`` and ``fluxpart.resultdir as
+#: resultdir`` and patches what the test needs (the signal tests of a staged write).
+RUN_WRITING_ONE_TABLE = (
+    "def command(args):\n"
+    "    resultdir.write_folder(args.out, {'annual': pd.DataFrame({'nee': [1.0]})},\n"
+    "                           site={}, config={}, seed=0, provenance={})\n"
+    "    return 0\n"
+    "cli._command_run = command\n"
+    "sys.exit(cli.main(['run', 'site.toml', '--out', sys.argv[1]]))\n")

@@ -4,6 +4,8 @@ Contract (README "Command line"): a user error is one ``error:`` line naming the
 setting, and exit status 2, with nothing written.
 """
 
+from bundles import RUN_WRITING_ONE_TABLE
+
 from fluxpart.cli import main
 
 
@@ -113,12 +115,7 @@ def test_sigterm_while_staging_is_one_line_and_leaves_no_staging(tmp_path):
         "    os.kill(os.getpid(), signal.SIGTERM)\n"
         "    time.sleep(5)\n"
         "resultdir._swap_in = killed\n"
-        "def command(args):\n"
-        "    resultdir.write_folder(args.out, {'annual': pd.DataFrame({'nee': [1.0]})},\n"
-        "                           site={}, config={}, seed=0, provenance={})\n"
-        "    return 0\n"
-        "cli._command_run = command\n"
-        "sys.exit(cli.main(['run', 'site.toml', '--out', sys.argv[1]]))\n")
+        + RUN_WRITING_ONE_TABLE)
     env = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parents[1]))
     out = tmp_path / "out"
     done = subprocess.run([sys.executable, "-c", script, str(out)], env=env, cwd=tmp_path,
@@ -142,12 +139,7 @@ _STAGED_RUN = (
     "    time.sleep(0.5)\n"
     "    real_swap(staging, directory)\n"
     "resultdir._swap_in = hung_up\n"
-    "def command(args):\n"
-    "    resultdir.write_folder(args.out, {'annual': pd.DataFrame({'nee': [1.0]})},\n"
-    "                           site={}, config={}, seed=0, provenance={})\n"
-    "    return 0\n"
-    "cli._command_run = command\n"
-    "sys.exit(cli.main(['run', 'site.toml', '--out', sys.argv[1]]))\n")
+    + RUN_WRITING_ONE_TABLE)
 
 
 def test_sighup_while_staging_unwinds_like_sigterm_unless_ignored(tmp_path):
