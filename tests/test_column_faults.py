@@ -886,7 +886,7 @@ def test_a_shifted_air_temperature_is_named_once_as_shifted():
 # ------------------------------------------------------------ storage counted twice
 
 
-def stored_below_sensor(days=120, store_scale=1.0, noise=1.0, seed=0):
+def stored_below_sensor(days=120, store_scale=1.0, noise=1.0, seed=0, uptake=18.0):
     """Invented tower records from the mass balance of the air below the sensor.
 
     The ecosystem exchanges NEE with the air below the sensor; the sensor sees the
@@ -894,14 +894,14 @@ def stored_below_sensor(days=120, store_scale=1.0, noise=1.0, seed=0):
     nights vent little); the storage term is S = dC/dt = NEE - F, so NEE = F + S
     (Finnigan 2006, Agric. For. Meteorol. 136:108-113). Returns (stamps, NEE, the
     turbulent flux with random error, S) [µmol m-2 s-1]; `store_scale` scales the store
-    (a short canopy holds little)."""
+    (a short canopy holds little); `uptake` is the noon uptake (0: a dormant season)."""
     rng = np.random.default_rng(seed)
     stamps = pd.date_range("2021-04-01", periods=days * PER_DAY, freq=f"{STEP}min")
     hour = (stamps.hour + stamps.minute / 60).to_numpy()
     light = np.clip(np.sin(np.pi * (hour - 6) / 12), 0, None)
     temperature = 12 + 5 * np.sin(2 * np.pi * (hour - 9) / 24) \
         + np.repeat(rng.normal(0, 2, days), PER_DAY)
-    nee = 2.5 * 2.0 ** ((temperature - 10) / 10) - 18 * light    # Q10 of 2 (common practice)
+    nee = 2.5 * 2.0 ** ((temperature - 10) / 10) - uptake * light   # Q10 of 2 (common practice)
     windiness = np.repeat(rng.gamma(2.0, 0.5, days), PER_DAY)
     vented = np.clip(windiness * (0.15 + 0.35 * light) / 0.3, 0, 1) * 0.9
     store, turbulent = 0.0, np.empty(nee.size)
