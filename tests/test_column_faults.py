@@ -812,7 +812,7 @@ def tetens_saturation(air):
 def test_vapour_pressure_or_its_saturation_mapped_as_vpd_is_named():
     # RH = 100 e / e_s(T) and VPD = e_s(T) - e (Campbell & Norman 1998, ch. 3 (m))
     air, rh, _ = humidity_record()
-    names = {"vpd": "VP_hPa", "rh": "RH", "tair": "Ta"}
+    names = {"vpd": "VP_hPa", "rh": "RH", "tair": "T_air"}
     e = np.round(tetens_saturation(air) * rh / 100.0, 2)
     text = vapour_pressure_as_vpd(air, rh, e, columns=names)
     assert text is not None and "'VP_hPa'" in text and "the vapour pressure e" in text
@@ -990,9 +990,9 @@ def test_soil_temperature_as_tair_in_one_year_of_several_is_named():
         pd.date_range(f"{year}-09-02", periods=DAYS * PER_DAY, freq=f"{STEP}min")
         for year in (2019, 2020, 2021)]))
     assert delayed_tair(tair, rh, vpd, STEP) is None          # the whole record: diluted
-    names = {"tair": "Ta", "rh": "RH", "vpd": "VPD"}
+    names = {"tair": "T_air", "rh": "RH", "vpd": "VPD"}
     text = delayed_tair_in_a_year(tair, rh, vpd, stamps, STEP, columns=names)
-    assert text is not None and text.startswith("in 2021 only") and "'Ta'" in text
+    assert text is not None and text.startswith("in 2021 only") and "'T_air'" in text
     delay = float(re.search(r"imply ([0-9.]+) h later", text).group(1))
     assert abs(delay - 2.8) <= STEP / 60.0                     # to the record, as one year
     # the same through the preflight, as `check` and `run` see it
