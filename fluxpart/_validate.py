@@ -106,6 +106,7 @@ def read_site_config_toml(path) -> dict:
                           f"{str(path)}, or give one of the site configs it lists")
     return document
 
+
 def read_toml(path, what: str) -> dict:
     """Parse the TOML file `path`; `what` names it in errors (e.g. ``"site config"``).
 

@@ -2045,6 +2045,16 @@ _STORAGE_LEVEL_RATIO = 2.0
 _STORAGE_FLUX_CORRELATION = 0.8
 #: Days of paired records the correlation needs; as the storage size check's 14.
 _STORAGE_FLUX_MIN_DAYS = 14
+#: A storage column moving against the flux is a flux (NEP) only where the NEE it forms
+#: (flux + column) stays below this share of the column's size at night (medians over
+#: records 00:00-04:00 local standard time). Where the store's exchange dominates the
+#: flux (a tall canopy outside the growing season: the turbulent flux is NEE minus the
+#: storage term), a genuine storage term correlates with the flux down to -0.93 (review44,
+#: the tests' vented store in winter, no uptake) and the NEE formed is the ecosystem's
+#: respiration, at night about the size of the storage term or more (the store fills
+#: from it); a column of NEP forms the opposite of the storage term, about 0 at night
+#: (-0.16 to -0.01 where the correlation passes -0.8). Our choice, halfway.
+_STORAGE_NIGHT_SHARE = 0.5
 #: Words of :func:`flux_as_storage`'s message (the reader keeps it before other causes).
 FLUX_COPY_WORDS = "looks like a flux, not the storage term"
 #: Blocks of days whose slopes give the spread, and the fewest such blocks judged; our
@@ -2199,6 +2209,11 @@ def flux_as_storage(turbulent, storage, stamps, columns=None) -> str | None:
         ``_STORAGE_FLUX_MIN_DAYS`` = 14 days of records: the storage column holds a flux
         (NEE, the turbulent flux itself, or NEP), and adding it counts the flux twice (on
         the maize example, NEE -490.8 -> -958.7 g C m-2, measured by round mistakes38).
+        A negative correlation is named only where the NEE formed (flux + column) does
+        not emit at night (its median over 00:00-04:00 local standard time at most
+        ``_STORAGE_NIGHT_SHARE`` = 0.5 times the column's median size there): a storage
+        term that rules a respiring flux (a tall canopy in winter) trades against it
+        record by record too, and the two then form respiration (review44).
         None otherwise.
 
     Notes
@@ -2207,9 +2222,13 @@ def flux_as_storage(turbulent, storage, stamps, columns=None) -> str | None:
     the change of the CO2 held below the sensor: positive while the store fills at night,
     negative while the morning's turbulence empties it, near 0 around midday, when the
     flux's uptake is largest. Its course over the day is therefore not the flux's, and the
-    two correlate weakly (the constant's comment gives the figures). A column that holds
-    the flux correlates with the turbulent flux at nearly 1 (the storage term's share of
-    its variance is small), and with the opposite sign where it is NEP.
+    two correlate weakly (the constant's comment gives the figures), except where no
+    uptake moves the flux and the store's exchange rules it: the turbulent flux is then
+    respiration minus the storage term, correlating with it down to -0.93. A column that
+    holds the flux correlates with the turbulent flux at nearly 1 (the storage term's
+    share of its variance is small), and with the opposite sign where it is NEP, whose
+    sum with the flux is the opposite of the storage term, about 0 at night, where NEE
+    is respiration (a fact of the trade).
 
     References
     ----------
@@ -2231,17 +2250,27 @@ def flux_as_storage(turbulent, storage, stamps, columns=None) -> str | None:
     correlation = float(np.corrcoef(flux, term)[0, 1])
     if not abs(correlation) > _STORAGE_FLUX_CORRELATION:
         return None
+    night = pd.DatetimeIndex(stamps[paired]).hour < 4
+    formed_at_night = float(np.median((flux + term)[night])) if night.any() else np.nan
+    if correlation < 0 and formed_at_night > _STORAGE_NIGHT_SHARE * float(
+            np.median(np.abs(term[night]))):
+        return None           # the NEE formed emits at night: a store that rules the flux
     names = columns or {}
     flux_name, term_name = names.get("nee", "nee"), names.get("storage", "storage")
-    sense = "with" if correlation > 0 else "against"
+    if correlation > 0:
+        sense, harm = "with", ("the storage term correlates with the flux within about "
+                               "±0.4); adding it counts the flux twice")
+    else:
+        sense, harm = "against", (f"the NEE formed with it is {formed_at_night:+.2f} µmol "
+                                  "m-2 s-1 at night (median, 00:00-04:00), where respiration "
+                                  "emits); adding it cancels the flux, as NEP would")
     return (f"the storage column ({term_name!r}) {FLUX_COPY_WORDS}: it moves {sense} the "
             f"flux in {flux_name!r} record by record (correlation {correlation:+.2f} over "
             f"{int(paired.sum())} records), while the storage term fills the store at night, "
             "empties it in the morning and stays near 0 at midday, when the flux is largest "
-            "(stored-CO2 columns correlate with the flux within about ±0.4); adding it "
-            "counts the flux twice: map the storage flux (the change of the CO2 stored "
-            "below the sensor) as storage, or, if the column mapped as nee is NEE "
-            "already (turbulent flux + storage), remove the storage mapping")
+            f"({harm}: map the storage flux (the change of the CO2 stored below the sensor) "
+            "as storage, or, if the column mapped as nee is NEE already (turbulent flux + "
+            "storage), remove the storage mapping")
 
 
 def storage_slope(turbulent, storage, stamps) -> tuple[float, float] | None:

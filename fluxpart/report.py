@@ -496,6 +496,7 @@ def _shared_e0_note(written: Written, first, last) -> str:
     return (f"; not independent: the daytime method took the nighttime method's E0 in "
             f"{shared} of {int(inside.sum())} light-response windows")
 
+
 def _reading_notes(combined_used: bool) -> str:
     notes = [
         "NEE &lt; 0 is net uptake by the ecosystem; GPP and Reco are positive. Budgets are in "

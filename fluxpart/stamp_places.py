@@ -374,6 +374,15 @@ _IN_UTC = _LazyPattern(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|da
                        r"|zeiten|uhrzeiten|horodatage|heures?)\b[^.;]{0,24}?"
                        r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?"
                        r"(?![a-z0-9]|-[a-z])")     # not "data in GMT-based format"
+#: A clock that is the stamps' source or an event's, not theirs: "Data in UTC converted
+#: to CET", "converted from UTC", "Date and time of export (UTC): ..." (review44: each
+#: refused as stamps in UTC); a conversion counts only after the clock ("Timestamps
+#: converted to UTC" states it)
+_CONVERTED = _LazyPattern(r"(?<!\bnot )(?<!\bno )\b(?:conver|transformed\b|(?:shifted|changed)"
+                          r"\s+(?:in)?to\b)")
+_FROM_CLOCK = _LazyPattern(r"\bfrom\s+(?:utc|gmt)\b")
+_EVENT_TIME = _LazyPattern(r"\bof\s+(?:the\s+)?(?:file\s+)?(?:export|creation|download"
+                           r"|processing|writing|upload)")
 #: "Time reference: UTC", "Timebase: UTC", "Time standard = GMT" (a clock or zone follows;
 #: bare numbers are not read, since "time base: 10" may be a sampling rate)
 _REFERENCE_KEY = _LazyPattern(r"(?:\btime[\s_-]*(?:reference|base|standard)|\btimebase"
@@ -580,10 +589,10 @@ def stated_offset(text: str) -> float | None:
         if offset is not None:
             return offset
     inside = _IN_UTC.search(lowered)
-    if inside:
+    if inside and not _source_clock(lowered, inside):
         return column_utc_offset(inside.group(1) + (inside.group(2) or "").replace(" ", ""))
     found = {column_utc_offset(m.group(1) + (m.group(2) or "").replace(" ", ""))
-             for m in _STAMPS_CLOCK.finditer(lowered)}
+             for m in _STAMPS_CLOCK.finditer(lowered) if not _source_clock(lowered, m)}
     if len(found) == 1 and "synchroni" not in lowered:   # not "clock synchronised to UTC"
         return found.pop()
     for key in _TIME_KEY.finditer(lowered):       # "Data logger time: UTC" (layouts27)
@@ -605,6 +614,13 @@ def stated_offset(text: str) -> float | None:
     if offset is None and re.fullmatch(r"\(?[A-Z]{3,4}\)?", original):    # a line "EET"
         offset = zone_offset(original)
     return offset
+
+
+def _source_clock(lowered: str, match) -> bool:
+    """Whether the clock of `match` in the line `lowered` is the source the stamps were
+    converted from, or the time of an event (an export), not the stamps' own clock."""
+    return bool(_CONVERTED.search(lowered, match.end()) or _FROM_CLOCK.search(lowered)
+                or _EVENT_TIME.search(match.group(0)))
 
 
 def _value_clock(value: str) -> float | None:

@@ -812,7 +812,7 @@ def tetens_saturation(air):
 def test_vapour_pressure_or_its_saturation_mapped_as_vpd_is_named():
     # RH = 100 e / e_s(T) and VPD = e_s(T) - e (Campbell & Norman 1998, ch. 3 (m))
     air, rh, _ = humidity_record()
-    names = {"vpd": "VP_hPa", "rh": "RH", "tair": "Ta"}
+    names = {"vpd": "VP_hPa", "rh": "RH", "tair": "T_air"}
     e = np.round(tetens_saturation(air) * rh / 100.0, 2)
     text = vapour_pressure_as_vpd(air, rh, e, columns=names)
     assert text is not None and "'VP_hPa'" in text and "the vapour pressure e" in text
@@ -886,7 +886,7 @@ def test_a_shifted_air_temperature_is_named_once_as_shifted():
 # ------------------------------------------------------------ storage counted twice
 
 
-def stored_below_sensor(days=120, store_scale=1.0, noise=1.0, seed=0):
+def stored_below_sensor(days=120, store_scale=1.0, noise=1.0, seed=0, uptake=18.0):
     """Invented tower records from the mass balance of the air below the sensor.
 
     The ecosystem exchanges NEE with the air below the sensor; the sensor sees the
@@ -894,14 +894,14 @@ def stored_below_sensor(days=120, store_scale=1.0, noise=1.0, seed=0):
     nights vent little); the storage term is S = dC/dt = NEE - F, so NEE = F + S
     (Finnigan 2006, Agric. For. Meteorol. 136:108-113). Returns (stamps, NEE, the
     turbulent flux with random error, S) [µmol m-2 s-1]; `store_scale` scales the store
-    (a short canopy holds little)."""
+    (a short canopy holds little); `uptake` is the noon uptake (0: a dormant season)."""
     rng = np.random.default_rng(seed)
     stamps = pd.date_range("2021-04-01", periods=days * PER_DAY, freq=f"{STEP}min")
     hour = (stamps.hour + stamps.minute / 60).to_numpy()
     light = np.clip(np.sin(np.pi * (hour - 6) / 12), 0, None)
     temperature = 12 + 5 * np.sin(2 * np.pi * (hour - 9) / 24) \
         + np.repeat(rng.normal(0, 2, days), PER_DAY)
-    nee = 2.5 * 2.0 ** ((temperature - 10) / 10) - 18 * light    # Q10 of 2 (common practice)
+    nee = 2.5 * 2.0 ** ((temperature - 10) / 10) - uptake * light   # Q10 of 2 (common practice)
     windiness = np.repeat(rng.gamma(2.0, 0.5, days), PER_DAY)
     vented = np.clip(windiness * (0.15 + 0.35 * light) / 0.3, 0, 1) * 0.9
     store, turbulent = 0.0, np.empty(nee.size)
@@ -990,9 +990,9 @@ def test_soil_temperature_as_tair_in_one_year_of_several_is_named():
         pd.date_range(f"{year}-09-02", periods=DAYS * PER_DAY, freq=f"{STEP}min")
         for year in (2019, 2020, 2021)]))
     assert delayed_tair(tair, rh, vpd, STEP) is None          # the whole record: diluted
-    names = {"tair": "Ta", "rh": "RH", "vpd": "VPD"}
+    names = {"tair": "T_air", "rh": "RH", "vpd": "VPD"}
     text = delayed_tair_in_a_year(tair, rh, vpd, stamps, STEP, columns=names)
-    assert text is not None and text.startswith("in 2021 only") and "'Ta'" in text
+    assert text is not None and text.startswith("in 2021 only") and "'T_air'" in text
     delay = float(re.search(r"imply ([0-9.]+) h later", text).group(1))
     assert abs(delay - 2.8) <= STEP / 60.0                     # to the record, as one year
     # the same through the preflight, as `check` and `run` see it

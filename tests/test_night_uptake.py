@@ -77,8 +77,8 @@ def test_cam_uptake_in_the_dark_is_named():
     nee = np.where(dark, 1.0 - 2.5, -4.0) + rng.laplace(0, 0.6, index.size)
     months = dark_uptake_months(index, nee, elevation)
     assert (months["z"] > SIGN_TEST_Z).all()
-    note = uptake_note(months, "Fc")
-    assert note.startswith("'Fc': the measured NEE of the dark records")
+    note = uptake_note(months, "co2_flux")
+    assert note.startswith("'co2_flux': the measured NEE of the dark records")
     assert "2 of 2 months (2021-03, 2021-04" in note
     assert "crassulacean acid metabolism" in note
     # the NEE budget stands for plants, not for a heated open-path analyser's apparent

@@ -128,7 +128,7 @@ def test_json_lines_below_a_title_are_named(tmp_path):
     "<stamp>,<fc>,<us>,<sw>,<ta>,<vpd>",        # names in angle brackets between commas
     "[stamp],[fc],[us],[sw],[ta],[vpd]",        # names in square brackets
     "{stamp},{fc}",                             # braces, not a JSON object
-    "TIMESTAMP;Fc [umol m-2 s-1];Rg [W/m2]",
+    "TIMESTAMP;co2_flux [umol m-2 s-1];Rg [W/m2]",
 ])
 def test_table_headers_are_not_taken_for_markup(header):
     """A delimited header whose names hold brackets is no JSON (RFC 8259 needs quoted

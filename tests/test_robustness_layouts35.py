@@ -21,7 +21,7 @@ from fluxpart.stamp_places import stated_offset
 from fluxpart.uncertainty_assembly import measured_in_range
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "fc", "rg": "sw", "tair": "ta", "vpd": "vpd", "ustar": "us"}
+MAPPING = {"nee": "co2", "rg": "sw", "tair": "t_air", "vpd": "vpd", "ustar": "us"}
 
 
 def _records(count=48 * 10):
@@ -31,9 +31,9 @@ def _records(count=48 * 10):
     rng = np.random.default_rng(35)
     return pd.DataFrame({
         "stamp": ends.strftime("%Y%m%d%H%M"),
-        "fc": (3 - 12 * np.clip(day, 0, None) + rng.normal(0, 1, count)).round(3),
+        "co2": (3 - 12 * np.clip(day, 0, None) + rng.normal(0, 1, count)).round(3),
         "sw": (np.clip(800 * day, 0, None) + 1.0).round(1),
-        "ta": (15 + 6 * day).round(2), "vpd": (0.8 + 0.6 * np.clip(day, 0, None)).round(3),
+        "t_air": (15 + 6 * day).round(2), "vpd": (0.8 + 0.6 * np.clip(day, 0, None)).round(3),
         "us": (0.3 + 0.1 * rng.random(count)).round(3)}), ends
 
 
@@ -60,6 +60,22 @@ def test_clocks_stated_above_the_header_are_read_as_iso_8601_offsets(line, offse
     assert stated_offset(line) == offset
 
 
+@pytest.mark.parametrize("line, offset", [
+    # the clock the stamps were converted from, or an event's (review44: each was read as
+    # stamps in UTC, and a site at UTC+1 refused)
+    ("Data in UTC converted to CET", None), ("Values in UTC were converted to local time", None),
+    ("Times in UTC converted to local standard time", None),
+    ("Timestamps converted from UTC to local time", None),
+    ("Date and time of export (UTC): 2021-06-01 12:00", None),
+    ("Datetime of file creation (UTC): 2021-06-01", None),
+    # kept: a conversion into UTC, a conversion denied, the stamps' clock beside an export's
+    ("Timestamps converted to UTC", 0.0), ("Stamps in UTC, not converted", 0.0),
+    ("All times in UTC; no conversion", 0.0), ("Export 2021-06-01 (UTC); timestamps in UTC+1", 1.0),
+])
+def test_a_clock_converted_from_or_of_an_export_is_not_the_stamps(line, offset):
+    assert stated_offset(line) == offset
+
+
 def test_a_clock_offset_line_other_than_the_site_is_refused_naming_both(tmp_path):
     """Before: "Logger clock offset: UTC+02:00" above stamps read as UTC+1 was read
     without a word; now both readings are named."""
@@ -81,7 +97,7 @@ def test_an_offset_counted_from_utc_in_words_is_not_read_as_utc(tmp_path):
     read, _ = _read(path, rows_before_header=2)
     starts = ends - pd.Timedelta("30min")
     assert read.index.equals(pd.DatetimeIndex(starts, name="time").as_unit(read.index.unit))
-    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["fc"].to_numpy())
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy())
 
 
 def _fixed(frame, widths):
@@ -95,8 +111,8 @@ def test_values_that_fill_a_fixed_width_are_named_as_run_together(tmp_path):
     """Before: '202106010130-9999.0' (a missing code filling its 7-character field) was
     named "an empty value leaves no field ... or a record cut short"."""
     frame, _ = _records()
-    frame["fc"] = frame["fc"].map("{:.3f}".format)
-    frame.loc[2, "fc"] = "-9999.0"
+    frame["co2"] = frame["co2"].map("{:.3f}".format)
+    frame.loc[2, "co2"] = "-9999.0"
     path = tmp_path / "t.dat"
     path.write_text(_fixed(frame, [12, 7, 7, 7, 7, 7]))
     with pytest.raises(InputFileError, match=r"line 4 .*'202106010130-9999\.0' is two "
@@ -111,7 +127,7 @@ def test_names_that_fill_a_fixed_width_are_named_as_run_together(tmp_path):
     frame = frame.rename(columns={"sw": "sw_in_wm2"})
     path = tmp_path / "t.dat"
     path.write_text(_fixed(frame, [14, 9, 9, 9, 9, 9]))
-    with pytest.raises(InputFileError, match=r"'fcsw_in_wm2' stand\(s\) over 2 columns"):
+    with pytest.raises(InputFileError, match=r"'co2sw_in_wm2' stand\(s\) over 2 columns"):
         _read(path, delimiter="whitespace")
 
 
@@ -119,7 +135,7 @@ def test_dates_and_aligned_headers_are_not_taken_for_fields_run_together():
     assert run_together_field("2021-06-01 00:30 -3.25 01.06.2021 2021.06.01 1e-5") is None
     assert run_together_field("0.5161013.2 1") == "0.5161013.2"
     # a header one name short over aligned columns: no cell spans two fields
-    assert fused_header_names("   stamp      fc", "  202106010030   0.5  1.2") == []
+    assert fused_header_names("   stamp     co2", "  202106010030   0.5  1.2") == []
 
 
 # ------------------------------------------------ [input] column_widths reads them
@@ -130,10 +146,10 @@ def _touching(tmp_path, title=""):
     """Invented records in columns of WIDTHS whose values fill them: '-9999.0' and
     '-10.125' touch their neighbour; blanks stand for a value not written."""
     frame, ends = _records()
-    frame = frame.astype({"fc": str, "ta": str, "us": str})
-    frame["fc"] = pd.to_numeric(frame["fc"]).map("{:.3f}".format)
-    frame.loc[2, "fc"] = "-9999.0"
-    frame.loc[5, "ta"] = "-10.125"
+    frame = frame.astype({"co2": str, "t_air": str, "us": str})
+    frame["co2"] = pd.to_numeric(frame["co2"]).map("{:.3f}".format)
+    frame.loc[2, "co2"] = "-9999.0"
+    frame.loc[5, "t_air"] = "-10.125"
     frame.loc[7, "us"] = ""
     path = tmp_path / "t.dat"
     path.write_text(title + _fixed(frame, WIDTHS))
@@ -146,7 +162,7 @@ def test_column_widths_read_values_that_touch_and_blank_cells(tmp_path):
     path, frame, ends = _touching(tmp_path, title="Quillmoor tower, fixed columns\n")
     read, _ = _read(path, column_widths=WIDTHS, rows_before_header=1, missing=[-9999])
     assert len(read) == len(frame)
-    expected = pd.to_numeric(frame["fc"]).where(lambda v: v != -9999)
+    expected = pd.to_numeric(frame["co2"]).where(lambda v: v != -9999)
     np.testing.assert_array_equal(read["nee"].to_numpy(), expected.to_numpy())
     assert read["tair"].iloc[5] == -10.125 and np.isnan(read["ustar"].iloc[7])
     assert read.index[0] == ends[0] - pd.Timedelta("30min")
@@ -199,21 +215,21 @@ def test_a_column_renamed_between_files_is_read_under_its_other_name(tmp_path):
     frame, ends = _records()
     half = len(frame) // 2
     frame.iloc[:half].to_csv(tmp_path / "a.csv", index=False)
-    frame.iloc[half:].rename(columns={"fc": "fc_v2"}).to_csv(tmp_path / "b.csv", index=False)
+    frame.iloc[half:].rename(columns={"co2": "co2_v2"}).to_csv(tmp_path / "b.csv", index=False)
     paths = [tmp_path / "a.csv", tmp_path / "b.csv"]
-    read, report = _read(paths, other_names={"nee": ["fc_v2"]})
-    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["fc"].to_numpy())
-    assert report.renamed_columns == {"fc_v2": ("fc", 1)}
-    assert report.to_dict()["renamed_columns"] == {"fc_v2": ["fc", 1]}
-    with pytest.raises(MissingColumnError, match=r"\[input.other_names\] \(nee = \['fc_v2'\]\)"):
+    read, report = _read(paths, other_names={"nee": ["co2_v2"]})
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy())
+    assert report.renamed_columns == {"co2_v2": ("co2", 1)}
+    assert report.to_dict()["renamed_columns"] == {"co2_v2": ["co2", 1]}
+    with pytest.raises(MissingColumnError, match=r"\[input.other_names\] \(nee = \['co2_v2'\]\)"):
         _read(paths)
 
 
 def test_a_file_with_both_names_or_an_unmapped_variable_is_refused(tmp_path):
     frame, _ = _records()
-    frame.assign(fc_v2=frame["fc"]).to_csv(tmp_path / "a.csv", index=False)
-    with pytest.raises(InputFileError, match=r"holds 'fc', 'fc_v2'.*which of them is nee"):
-        _read(tmp_path / "a.csv", other_names={"nee": ["fc_v2"]})
+    frame.assign(co2_v2=frame["co2"]).to_csv(tmp_path / "a.csv", index=False)
+    with pytest.raises(InputFileError, match=r"holds 'co2', 'co2_v2'.*which of them is nee"):
+        _read(tmp_path / "a.csv", other_names={"nee": ["co2_v2"]})
     with pytest.raises(ConfigError, match=r"no single column is mapped to tsoil"):
         _read(tmp_path / "a.csv", other_names={"tsoil": ["ts2"]})
     with pytest.raises(ConfigError, match=r"'sw' is mapped or the time column"):

@@ -119,7 +119,21 @@ def test_a_flux_mapped_as_storage_is_named_and_a_storage_term_is_not():
     named = flux_as_storage(turbulent, nee, stamps, {"nee": "flux", "storage": "store"})
     assert named.startswith("the storage column ('store') looks like a flux")
     assert "moves with the flux in 'flux'" in named
-    assert "moves against" in flux_as_storage(turbulent, -nee, stamps)
+    against = flux_as_storage(turbulent, -nee, stamps)
+    assert "moves against" in against and "cancels the flux" in against
+
+
+def test_a_storage_term_ruling_a_winter_flux_is_no_flux():
+    """Invented vented store without uptake (a dormant season; seed 1): the turbulent
+    flux is NEE minus the storage term, so the two correlate at -0.93 record by record;
+    the NEE they form is respiration (a fact of the trade: an ecosystem emits at night),
+    so the column is no NEP; refused as a flux before review44. NEP itself in the growing
+    season is still named (above)."""
+    stamps, nee, turbulent, storage = stored_below_sensor(days=60, noise=0.3, seed=1,
+                                                          uptake=0.0)
+    assert np.corrcoef(turbulent, storage)[0, 1] < -0.9
+    assert flux_as_storage(turbulent, storage, stamps) is None
+    assert storage_in_turbulent_flux(turbulent, storage, stamps) is None
 
 
 def test_fewer_than_fourteen_days_are_not_judged():

@@ -520,7 +520,7 @@ def self_heating_residual(tair, rg, speed, pressure_hpa=950.0):
     """The apparent flux [umol m-2 s-1, negative = uptake] left after an open-path
     self-heating correction fitted in a milder climate.
 
-    The analyser's surfaces run dT = 2.5 - 0.11 Ta + 0.004 Rg K above the air (clipped
+    The analyser's surfaces run dT = 2.5 - 0.11 T_air + 0.004 Rg K above the air (T_air in °C) (clipped
     0-9 K), passing H = 0.5 (4 + 2.5 U) dT W m-2 into the sampled air (sizes invented in the
     range of Burba et al. 2008 (m)); the density term this heat leaves unaccounted is
     -c H / (rho cp T) with c the CO2 molar density (410 umol mol-1 of the air's p / (R T))
