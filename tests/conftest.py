@@ -78,6 +78,23 @@ def demo_draws20_run():
 
 
 @pytest.fixture(scope="session")
+def demo_tsoil_run():
+    """Demo seed 4 processed with respiration set to soil temperature and no u* bootstrap:
+    (frame, config, result). Read by the pipeline's driver test and the temperature
+    choice's set-temperature warning; read-only."""
+    import warnings
+
+    import fluxpart
+    from fluxpart import demo
+
+    frame, _ = demo.site_year(seed=4)
+    config = fluxpart.Config(respiration_driver="tsoil", ustar_bootstrap_draws=0)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", fluxpart.FluxpartWarning)
+        return frame, config, fluxpart.process(frame, demo.site(), config)
+
+
+@pytest.fixture(scope="session")
 def pristine_bundle(tmp_path_factory):
     """The bundle of :func:`bundles.make_bundle`, processed and written once per session;
     each module gets its own copy (`bundle`)."""

@@ -178,11 +178,11 @@ def test_two_years_with_a_leap_year():
     assert result.annual["complete"].all()
 
 
-def test_soil_temperature_as_respiration_driver():
-    """respiration_driver = 'tsoil' drives Reco by soil temperature; absent tsoil is an error."""
-    frame, _ = demo.site_year(seed=4)
-    config = Config(respiration_driver="tsoil", ustar_bootstrap_draws=0)
-    result = process(frame, demo.site(), config)
+def test_soil_temperature_as_respiration_driver(demo_tsoil_run):
+    """respiration_driver = 'tsoil' drives Reco by soil temperature; absent tsoil is an error.
+    (Demo seed 4 with the driver set, no u* bootstrap: the session's run.)"""
+    frame, config, result = demo_tsoil_run
+    assert config == Config(respiration_driver="tsoil", ustar_bootstrap_draws=0)
     assert result.parameters["nighttime_e0_annual"]["e0"].notna().all()
     with pytest.raises(ConfigError, match="respiration_driver = 'tsoil'"):
         process(frame.drop(columns="tsoil"), demo.site(), config)
