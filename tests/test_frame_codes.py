@@ -58,14 +58,15 @@ def test_frame_code_messages_name_the_code_and_count():
 
 
 @pytest.fixture(scope="module")
-def demo_runs():
-    frame, _ = fluxpart.demo.site_year(seed=0)
+def demo_runs(demo_default_run):
+    """The clean demo year (the session's default run of seed 0) and the same frame with
+    -9999 in 5 % of Rg, processed alike."""
+    frame, _, clean = demo_default_run
     coded = frame.copy()
     rows = np.random.default_rng(1).random(len(coded)) < 0.05
     coded.loc[rows, "rg"] = -9999.0
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", fluxpart.FluxpartWarning)
-        clean = fluxpart.process(frame, fluxpart.demo.SITE)
         coded_run = fluxpart.process(coded, fluxpart.demo.SITE)
     return frame, clean, coded_run
 

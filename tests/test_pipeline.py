@@ -33,10 +33,20 @@ def _truth_sums(truth, interval_minutes=30):
 
 
 @pytest.fixture(scope="module")
-def demo_run():
-    """One demo site-year processed with the default settings."""
-    frame, truth = demo.site_year(seed=0)
-    return frame, truth, process(frame, demo.site())
+def demo_run(demo_default_run):
+    """One demo site-year processed with the default settings (the session's run)."""
+    return demo_default_run
+
+
+@pytest.fixture(scope="module")
+def demo_rerun(demo_run):
+    """The same input, config and seed run a second time: (rerun, the input as it was before).
+
+    Shared by the determinism checks of the tables and of the written files, which each
+    compare the first run with an independent second one."""
+    frame, _, _ = demo_run
+    before = frame.copy()
+    return process(frame, demo.site()), before
 
 
 def test_result_honours_the_public_contract(demo_run):
@@ -109,25 +119,26 @@ def test_c4_variant_daytime_within_15_percent():
     assert abs(result.annual.loc[2021, "reco_daytime"] / true["reco"] - 1) < 0.15
 
 
-def test_process_is_deterministic_and_leaves_its_input_alone(demo_run):
-    """Same input, config and seed give identical tables; the input frame is not modified."""
+def test_process_is_deterministic_and_leaves_its_input_alone(demo_run, demo_rerun):
+    """Same input, config and seed give identical tables; the input frame is not modified
+    (neither by the rerun nor by the first run: the frame is the simulation's, redrawn)."""
     frame, _, result = demo_run
-    before = frame.copy()
-    again = process(frame, demo.site())
+    again, before = demo_rerun
     pd.testing.assert_frame_equal(frame, before)
+    pd.testing.assert_frame_equal(frame, demo.site_year(seed=0)[0])
     pd.testing.assert_frame_equal(again.timeseries, result.timeseries)
     pd.testing.assert_frame_equal(again.annual, result.annual)
 
 
-def test_written_folder_is_byte_identical_across_runs(demo_run, tmp_path):
+def test_written_folder_is_byte_identical_across_runs(demo_run, demo_rerun, tmp_path):
     """Two writes of the same result, and of a rerun, give byte-identical files.
 
     The run log (who, when, where) is the one file meant to differ; the manifest
     lists it without a hash.
     """
-    frame, _, result = demo_run
+    _, _, result = demo_run
     result.write(tmp_path / "a")
-    process(frame, demo.site()).write(tmp_path / "b")
+    demo_rerun[0].write(tmp_path / "b")
     files = sorted(p.name for p in (tmp_path / "a").iterdir() if p.name != "run-log.json")
     assert "manifest.json" in files and "annual.parquet" in files
     for name in files:
@@ -167,11 +178,11 @@ def test_two_years_with_a_leap_year():
     assert result.annual["complete"].all()
 
 
-def test_soil_temperature_as_respiration_driver():
-    """respiration_driver = 'tsoil' drives Reco by soil temperature; absent tsoil is an error."""
-    frame, _ = demo.site_year(seed=4)
-    config = Config(respiration_driver="tsoil", ustar_bootstrap_draws=0)
-    result = process(frame, demo.site(), config)
+def test_soil_temperature_as_respiration_driver(demo_tsoil_run):
+    """respiration_driver = 'tsoil' drives Reco by soil temperature; absent tsoil is an error.
+    (Demo seed 4 with the driver set, no u* bootstrap: the session's run.)"""
+    frame, config, result = demo_tsoil_run
+    assert config == Config(respiration_driver="tsoil", ustar_bootstrap_draws=0)
     assert result.parameters["nighttime_e0_annual"]["e0"].notna().all()
     with pytest.raises(ConfigError, match="respiration_driver = 'tsoil'"):
         process(frame.drop(columns="tsoil"), demo.site(), config)

@@ -26,7 +26,7 @@ import pyarrow.parquet as pq
 import pytest
 
 import fluxpart
-from fluxpart import demo, figures, report
+from fluxpart import figures, report
 from fluxpart.cli import main
 from fluxpart.errors import FluxpartError, InputFileError
 from fluxpart.figures import (
@@ -51,13 +51,15 @@ NEW_FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_day
 
 
 @pytest.fixture(scope="module")
-def processed():
-    """The demo site-year processed once (hostile site name and warning added)."""
-    frame, _ = demo.site_year(seed=0)
-    result = fluxpart.process(frame, demo.site(), fluxpart.Config(ustar_bootstrap_draws=20),
-                              provenance={"demo": {"seed": 0, "variant": "c3"}})
+def processed(demo_draws20_run):
+    """The demo site-year processed once (the session's run with a 20-draw u* bootstrap),
+    with the provenance ``process(..., provenance={"demo": ...})`` records (the caller's
+    entries come first and change no table) and a hostile site name and warning added."""
+    result = demo_draws20_run
     site = dataclasses.replace(result.site, name=HOSTILE_NAME)
-    return dataclasses.replace(result, site=site, warnings=(*result.warnings, HOSTILE_WARNING))
+    provenance = {"demo": {"seed": 0, "variant": "c3"}, **result.provenance}
+    return dataclasses.replace(result, site=site, provenance=provenance,
+                               warnings=(*result.warnings, HOSTILE_WARNING))
 
 
 def _written_and_reported(result, directory):

@@ -6,7 +6,6 @@ standard atomic weights (m)); a shallow copy under pandas copy-on-write keeps it
 when the original changes (pandas documentation, "Copy-on-Write" (m)).
 """
 import pickle
-import warnings
 
 import numpy as np
 import pandas as pd
@@ -39,11 +38,10 @@ def test_nan_in_the_same_place_is_no_change():
 
 
 @pytest.fixture(scope="module")
-def demo_result():
-    frame, _ = fluxpart.demo.site_year(seed=0)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", fluxpart.FluxpartWarning)
-        return fluxpart.process(frame, fluxpart.demo.SITE)
+def demo_result(demo_default_run):
+    """The session's default run of demo seed 0 (shared: a test that changes its tables
+    puts them back in a ``finally`` or changes a pickled copy)."""
+    return demo_default_run[2]
 
 
 def test_a_sum_converted_in_place_is_not_written(demo_result, tmp_path):

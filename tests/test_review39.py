@@ -16,7 +16,6 @@ import pytest
 from clock_sites import synthetic_rg
 
 import fluxpart
-from fluxpart import demo
 from fluxpart.clock import check_clock
 
 #: t CO2 ha-1 per g C m-2: 44.009 / 12.011 (IUPAC conventional atomic weights (m): C 12.011,
@@ -59,12 +58,9 @@ def test_a_longitude_of_the_wrong_sign_alone_is_still_named_alone():
 
 
 @pytest.fixture(scope="module")
-def demo_result():
-    """The invented demo site-year processed once (a net sink)."""
-    frame, _ = demo.site_year(seed=0)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")
-        return fluxpart.process(frame, demo.site(), fluxpart.Config(ustar_bootstrap_draws=20))
+def demo_result(demo_draws20_run):
+    """The invented demo site-year processed once (a net sink; the session's run)."""
+    return demo_draws20_run
 
 
 def _as_source(result):

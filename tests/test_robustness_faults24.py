@@ -33,12 +33,17 @@ def _one_error_line(capsys) -> str:
 # --------------------------------------------------------------------------- umask
 
 @pytest.mark.parametrize("mask", [0o022, 0o077, 0o027, 0o002])
-def test_the_usual_umasks_are_accepted(mask):
+def test_the_usual_umasks_are_accepted(mask, tmp_path):
     """022 and 077 (and their group variants) leave the owner every right (common
-    practice); writing goes on as before under them."""
+    practice); writing goes on as before under them: the file is written whole, with the
+    mode asked for (0o666) less the mask's bits (POSIX ``umask(2)`` (m))."""
     old = os.umask(mask)
     try:
-        store.require_owner_access()
+        assert store.require_owner_access() is None            # not refused
+        store.atomic_write_bytes(tmp_path / "table.parquet", b"PAR1 data")
+        written = tmp_path / "table.parquet"
+        assert written.read_bytes() == b"PAR1 data"
+        assert written.stat().st_mode & 0o777 == 0o666 & ~mask
     finally:
         os.umask(old)
 

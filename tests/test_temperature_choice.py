@@ -435,14 +435,15 @@ def test_a_weak_preference_leaves_the_set_temperature_unremarked():
     assert forced_driver_note("tsoil", strong) is not None
 
 
-def test_the_run_warns_of_a_set_temperature_the_night_data_reject():
+def test_the_run_warns_of_a_set_temperature_the_night_data_reject(demo_tsoil_run):
     """process(): the demo's respiration follows air temperature (demo.py); set to
-    tsoil, the run warns and its numbers are those of the setting."""
+    tsoil, the run warns and its numbers are those of the setting. (The tsoil run of demo
+    seed 4 is the session's.)"""
     from fluxpart.pipeline import process
 
-    frame, _ = demo.site_year(seed=4)
+    frame, config, soil = demo_tsoil_run
     settings = dict(ustar_bootstrap_draws=0)
-    soil = process(frame, demo.site(), Config(respiration_driver="tsoil", **settings))
+    assert config == Config(respiration_driver="tsoil", **settings)
     assert any("respiration_driver = 'tsoil' is used as set" in w for w in soil.warnings)
     air = process(frame, demo.site(), Config(respiration_driver="tair", **settings))
     assert not any("is used as set" in w for w in air.warnings)

@@ -8,9 +8,7 @@ from conftest import load_reference
 from scipy import integrate, stats
 
 from fluxpart import demo
-from fluxpart.config import Config
 from fluxpart.errors import InsufficientDataError, MissingColumnError, SpacingError
-from fluxpart.pipeline import process
 from fluxpart.uncertainty import (
     ANNUAL_COLUMNS,
     artificial_gap_errors,
@@ -32,10 +30,10 @@ REFERENCE = load_reference("uncertainty")
 
 
 @pytest.fixture(scope="module")
-def demo_result():
-    """One processed demo year (few u* bootstrap draws, so the scenario columns exist)."""
-    frame, truth = demo.site_year(seed=0)
-    return process(frame, demo.site(), Config(ustar_bootstrap_draws=10)), truth
+def demo_result(demo_draws20_run):
+    """One processed demo year (few u* bootstrap draws, so the scenario columns exist:
+    the session's 20-draw run of seed 0) and its truth."""
+    return demo_draws20_run, demo.site_year(seed=0)[1]
 
 
 @pytest.fixture(scope="module")
