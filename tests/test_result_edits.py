@@ -6,6 +6,7 @@ standard atomic weights (m)); a shallow copy under pandas copy-on-write keeps it
 when the original changes (pandas documentation, "Copy-on-Write" (m)).
 """
 import pickle
+import re
 import warnings
 
 import numpy as np
@@ -145,3 +146,41 @@ def test_a_parameter_table_added_or_removed_is_a_change(demo_result, tmp_path):
     result.parameters["daytime"] = daytime
     result.write(tmp_path / "as_computed")
     assert (tmp_path / "as_computed" / "parameters_daytime.parquet").is_file()
+
+
+def test_a_table_exchanged_by_replace_or_changed_before_pickling_is_not_written(
+        demo_result, tmp_path):
+    """Round mistakes39: ``dataclasses.replace(result, annual=converted)`` (the way to change
+    a frozen dataclass) and a result converted in a worker and pickled back (or copied)
+    made copies of the changed tables their "as computed" ones: the folder was written
+    and sealed with annual NEE -884.7 (g CO2, 1 g C = 44.01 / 12.011 g CO2, IUPAC atomic
+    weights (m)) under its g C m-2 description. Known-truth recovery on the invented
+    Quillmoor grassland: the result as computed still writes, each exchange is named."""
+    import copy
+    import dataclasses
+
+    result = demo_result
+    converted = result.annual.assign(nee=result.annual["nee"] * 44.01 / 12.011)
+    replaced = dataclasses.replace(result, annual=converted)
+    with pytest.raises(OutputError, match=r"annual \(column 'nee' changed\)"):
+        replaced.write(tmp_path / "replaced")
+    edited = pickle.loads(pickle.dumps(result))
+    edited.annual["nee"] *= 44.01 / 12.011
+    for name, again in (("pickled", pickle.loads(pickle.dumps(edited))),
+                        ("copied", copy.copy(edited))):
+        with pytest.raises(OutputError, match=r"annual \(column 'nee' changed\)"):
+            again.write(tmp_path / name)
+    for field, value, named in (
+            ("config", fluxpart.Config(seed=7), "config (changed)"),
+            ("site", dataclasses.replace(result.site, latitude=-49.3), "site (changed)"),
+            ("warnings", result.warnings + ("a note of mine",), "warnings (changed)")):
+        with pytest.raises(OutputError, match=re.escape(named)):
+            dataclasses.replace(result, **{field: value}).write(tmp_path / field)
+    assert not any(tmp_path.iterdir())
+    # unchanged through replace, pickling and copying: written
+    for name, same in (("replace", dataclasses.replace(result)),
+                       ("pickle", pickle.loads(pickle.dumps(result))),
+                       ("deepcopy", copy.deepcopy(result))):
+        same.write(tmp_path / name)
+    assert fluxpart.load(tmp_path / "deepcopy").annual["nee"].iloc[0] == pytest.approx(
+        result.annual["nee"].iloc[0])
