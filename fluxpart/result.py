@@ -174,14 +174,10 @@ class Result:
         (:func:`fluxpart.result_edits.changed_since_digests`).
         """
         from .errors import OutputError
-        from .result_edits import changed_since, changed_tables
+        from .result_edits import changes
         from .resultdir import DEFAULT_LOCK_TIMEOUT, write_folder
 
-        kept = getattr(self, "_as_computed", None)      # made by __post_init__, __setstate__
-        changed = [] if kept is None else changed_tables(kept, self.tables())
-        if not changed and getattr(self, "_computed", None) is not None:
-            # exchanged by dataclasses.replace, or changed before pickling or copying
-            changed = changed_since(self._computed, self)
+        changed = changes(self)
         if changed:
             raise OutputError(
                 f"Result.write: table(s) changed after the run: {', '.join(changed)}; a "

@@ -29,7 +29,8 @@ import pandas as pd
 
 from .store import _CARRIED
 
-__all__ = ["as_computed", "changed_since", "changed_tables", "kept_tables", "portable"]
+__all__ = ["as_computed", "changed_since", "changed_tables", "changes", "kept_tables",
+           "portable"]
 
 #: The parts of a result written into ``manifest.json`` besides the tables.
 _MANIFEST_PARTS = ("site", "config", "warnings", "provenance")
@@ -185,6 +186,34 @@ def portable(record: dict) -> dict:
     """
     return {**record, "tables": {name: table if isinstance(table, dict) else _table_digest(table)
                                  for name, table in record["tables"].items()}}
+
+
+def changes(result, *, manifest: bool = True) -> list:
+    """What changed in a result since :func:`fluxpart.process` made it, one text each.
+
+    Parameters
+    ----------
+    result : fluxpart.Result
+        The result about to be written or exported.
+    manifest : bool, optional
+        Also the site, config, warnings and provenance (what ``manifest.json`` records;
+        default); ``False``: the tables alone (what a Dataset labels with units).
+
+    Returns
+    -------
+    list of str
+        :func:`changed_tables` against the result's own kept copies, else
+        :func:`changed_since` against the record handed on by ``dataclasses.replace``,
+        pickling or copying; empty where the result is as made.
+    """
+    kept = getattr(result, "_as_computed", None)        # made by __post_init__, __setstate__
+    found = [] if kept is None else changed_tables(kept, result.tables())
+    record = getattr(result, "_computed", None)
+    if not found and record is not None:
+        found = changed_since(record, result)
+        if not manifest:
+            found = [text for text in found if text.split(" (")[0] not in _MANIFEST_PARTS]
+    return found
 
 
 def changed_since(record: dict, result) -> list:

@@ -184,3 +184,20 @@ def test_a_table_exchanged_by_replace_or_changed_before_pickling_is_not_written(
         same.write(tmp_path / name)
     assert fluxpart.load(tmp_path / "deepcopy").annual["nee"].iloc[0] == pytest.approx(
         result.annual["nee"].iloc[0])
+
+
+def test_a_dataset_of_changed_tables_is_refused(demo_result):
+    """Round mistakes39: ``result.annual["nee"] *= 44.01 / 12.011`` then ``to_xarray()``
+    gave ``nee_annual_sum`` -884.7 labelled "g m-2 ... grams of carbon" (the grassland's
+    -241.4 g C m-2 in g CO2, IUPAC atomic weights (m)); now refused, as write is. A
+    result as computed, or with only its provenance exchanged (not a table), exports."""
+    import dataclasses
+
+    pytest.importorskip("xarray")
+    result = pickle.loads(pickle.dumps(demo_result))
+    assert "nee_annual_sum" in dataclasses.replace(result, provenance={}).to_xarray()
+    result.annual["nee"] *= 44.01 / 12.011
+    with pytest.raises(fluxpart.FluxpartError, match=r"annual \(column 'nee' changed\)"):
+        result.to_xarray()
+    with pytest.raises(fluxpart.FluxpartError, match=r"annual \(column 'nee' changed\)"):
+        pickle.loads(pickle.dumps(result)).to_xarray()
