@@ -210,13 +210,14 @@ def changes(result, *, manifest: bool = True) -> list:
     found = [] if kept is None else changed_tables(kept, result.tables())
     record = getattr(result, "_computed", None)
     if not found and record is not None:
-        found = changed_since(record, result)
+        # a result's own kept copies were compared just above: its manifest parts remain
+        found = changed_since(record, result, tables=record["tables"] is not kept)
         if not manifest:
             found = [text for text in found if text.split(" (")[0] not in _MANIFEST_PARTS]
     return found
 
 
-def changed_since(record: dict, result) -> list:
+def changed_since(record: dict, result, *, tables: bool = True) -> list:
     """What differs from :func:`as_computed`'s record of the result as made, one text each.
 
     Parameters
@@ -226,6 +227,8 @@ def changed_since(record: dict, result) -> list:
         made it.
     result : fluxpart.Result
         The result about to be written.
+    tables : bool, optional
+        Compare the tables too (default); ``False``: the manifest parts alone.
 
     Returns
     -------
@@ -233,12 +236,14 @@ def changed_since(record: dict, result) -> list:
         E.g. ``"annual (column 'nee' changed)"`` or ``"config (changed)"``; empty where
         the result is as made.
     """
-    tables = result.tables()
-    if not any(isinstance(table, dict) for table in record["tables"].values()):
-        found = changed_tables(record["tables"], tables)
+    now = result.tables() if tables else {}
+    if not tables:
+        found = []
+    elif not any(isinstance(table, dict) for table in record["tables"].values()):
+        found = changed_tables(record["tables"], now)
     else:
         found = _changed_digests(portable(record)["tables"],
-                                 {name: _table_digest(table) for name, table in tables.items()})
+                                 {name: _table_digest(table) for name, table in now.items()})
     return found + [f"{part} (changed)" for part in _MANIFEST_PARTS
                     if _text_digest(_manifest_part(result, part)) != record[part]]
 
