@@ -238,12 +238,11 @@ def _refuse_changed(result) -> None:
     Every variable of the Dataset carries the unit and meaning of the column it came
     from as computed: ``result.annual["nee"] *= 44.01 / 12.011`` was exported as
     ``nee_annual_sum`` -884.7 "g m-2 ... grams of carbon" for -241.4 (round mistakes39).
-    Added columns are not exported, but they are named alike, as :meth:`Result.write`
-    names them.
+    An added column or table is not exported, so it is no change here.
     """
     from .result_edits import changes
 
-    changed = changes(result, manifest=False)
+    changed = changes(result, manifest=False, additions=False)
     if changed:
         raise FluxpartError(
             f"to_xarray: table(s) changed after the run: {', '.join(changed)}; each variable "

@@ -175,8 +175,8 @@ def as_computed(result, kept: dict) -> dict:
 def portable(record: dict) -> dict:
     """:func:`as_computed`'s record with its tables as digests, to pickle or copy.
 
-    Each table becomes a SHA-256 (16 hex digits) per column, of the index, of the column
-    labels and of the ``attrs`` written into the file: a few kilobytes in place of a
+    Each table becomes a SHA-256 (16 hex digits) per column, of the index and of the
+    ``attrs`` written into the file, and its column labels: a few kilobytes in place of a
     second copy of the data.
 
     References
@@ -188,7 +188,7 @@ def portable(record: dict) -> dict:
                                  for name, table in record["tables"].items()}}
 
 
-def changes(result, *, manifest: bool = True) -> list:
+def changes(result, *, manifest: bool = True, additions: bool = True) -> list:
     """What changed in a result since :func:`fluxpart.process` made it, one text each.
 
     Parameters
@@ -198,6 +198,9 @@ def changes(result, *, manifest: bool = True) -> list:
     manifest : bool, optional
         Also the site, config, warnings and provenance (what ``manifest.json`` records;
         default); ``False``: the tables alone (what a Dataset labels with units).
+    additions : bool, optional
+        Also columns and tables added (default); ``False``: only what changed or went
+        missing (a Dataset exports the columns it knows, so an added one is no change there).
 
     Returns
     -------
@@ -214,7 +217,17 @@ def changes(result, *, manifest: bool = True) -> list:
         found = changed_since(record, result, tables=record["tables"] is not kept)
         if not manifest:
             found = [text for text in found if text.split(" (")[0] not in _MANIFEST_PARTS]
+    if not additions:
+        found = [text for text in map(_without_additions, found) if text]
     return found
+
+
+def _without_additions(text: str) -> str:
+    """``"annual (column 'nee' changed; column 'x' added)"`` less its additions: ``"annual
+    (column 'nee' changed)"``; empty where only additions were found."""
+    name, _, parts = text.partition(" (")
+    kept = [part for part in parts.rstrip(")").split("; ") if not part.endswith(" added")]
+    return f"{name} ({'; '.join(kept)})" if kept else ""
 
 
 def changed_since(record: dict, result, *, tables: bool = True) -> list:
@@ -257,11 +270,18 @@ def _changed_digests(before_tables: dict, now_tables: dict) -> list:
         if before is None or before == parts:
             continue
         texts = [f"{key} {'changed' if key in before else 'added'}" for key, value
-                 in parts.items() if before.get(key) != value]
+                 in parts.items() if before.get(key) != value
+                 and not (key == "column labels" and _only_added(before[key], value))]
         texts += [f"{key} removed" for key in before if key not in parts]
         found.append(f"{name} ({'; '.join(texts[:4])}"
                      f"{f'; {len(texts) - 4} more' if len(texts) > 4 else ''})")
     return found
+
+
+def _only_added(before: str, now: str) -> bool:
+    """Whether the labels `now` are those `before` in the same order with others added."""
+    (labels, names), (now_labels, now_names) = json.loads(before), json.loads(now)
+    return names == now_names and [label for label in now_labels if label in labels] == labels
 
 
 def _table_digest(table: pd.DataFrame) -> dict:
@@ -272,8 +292,10 @@ def _table_digest(table: pd.DataFrame) -> dict:
            for position, label in enumerate(table.columns)}
     out["index"] = _values_digest(table.index) + _text_digest(
         [list(map(str, table.index.names)), str(table.index.dtype)])
-    out["column labels"] = _text_digest([list(map(str, table.columns)),
-                                         list(map(str, table.columns.names))])
+    # the labels themselves (a few hundred bytes): an added column is named as such, not
+    # also as "column labels changed"
+    out["column labels"] = json.dumps([list(map(str, table.columns)),
+                                       list(map(str, table.columns.names))])
     out["attrs"] = _text_digest({key: table.attrs.get(key) for key in _CARRIED})
     return out
 

@@ -190,12 +190,15 @@ def test_a_dataset_of_changed_tables_is_refused(demo_result):
     """Round mistakes39: ``result.annual["nee"] *= 44.01 / 12.011`` then ``to_xarray()``
     gave ``nee_annual_sum`` -884.7 labelled "g m-2 ... grams of carbon" (the grassland's
     -241.4 g C m-2 in g CO2, IUPAC atomic weights (m)); now refused, as write is. A
-    result as computed, or with only its provenance exchanged (not a table), exports."""
+    result as computed, with only its provenance exchanged or a column added (neither is
+    exported), exports."""
     import dataclasses
 
     pytest.importorskip("xarray")
     result = pickle.loads(pickle.dumps(demo_result))
     assert "nee_annual_sum" in dataclasses.replace(result, provenance={}).to_xarray()
+    result.annual["nee_g_co2"] = result.annual["nee"] * 44.01 / 12.011   # not exported
+    assert "nee_g_co2" not in str(result.to_xarray().data_vars)
     result.annual["nee"] *= 44.01 / 12.011
     with pytest.raises(fluxpart.FluxpartError, match=r"annual \(column 'nee' changed\)"):
         result.to_xarray()
