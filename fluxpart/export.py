@@ -232,6 +232,26 @@ def _bounds(starts: pd.DatetimeIndex, length: pd.Timedelta, offset: pd.Timedelta
     return middle, np.stack([start_utc, end_utc], axis=1)
 
 
+def _refuse_changed(result) -> None:
+    """Refuse a result whose tables were changed since :func:`fluxpart.process` made it.
+
+    Every variable of the Dataset carries the unit and meaning of the column it came
+    from as computed: ``result.annual["nee"] *= 44.01 / 12.011`` was exported as
+    ``nee_annual_sum`` -884.7 "g m-2 ... grams of carbon" for -241.4 (round mistakes39).
+    An added column or table is not exported, so it is no change here.
+    """
+    from .result_edits import changes
+
+    changed = changes(result, manifest=False, additions=False)
+    if changed:
+        raise FluxpartError(
+            f"to_xarray: table(s) changed after the run: {', '.join(changed)}; each variable "
+            "of the Dataset is labelled with the unit and meaning of the column as fluxpart "
+            "computed it: export the result as computed and convert the Dataset (e.g. "
+            "ds['nee_annual_sum'] * 44.01 / 12.011 with its 'units' attribute), or change "
+            "a copy (result.annual.copy())")
+
+
 def to_xarray(result):
     """Return the record (30 or 60 min), daily, monthly and annual series of a result as a
     CF-1.10 Dataset.
@@ -258,7 +278,8 @@ def to_xarray(result):
     Raises
     ------
     FluxpartError
-        If xarray is not installed, or the result lacks a required column.
+        If xarray is not installed, the result lacks a required column, or its tables
+        were changed after the run (a sum converted in place; since round mistakes39).
 
     Notes
     -----
@@ -272,6 +293,7 @@ def to_xarray(result):
 
         folder, result = result, load(result)
         return _credit(to_xarray(result), _computed_by(folder))
+    _refuse_changed(result)
     series = result.timeseries
     missing = [column for column, _ in _FLUXES.values() if column not in series.columns]
     if missing:

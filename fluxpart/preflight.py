@@ -33,6 +33,8 @@ the u* detector
 record shorter than a year                annual budget (partial)             no
 many Rg records above potential           screening (clock evidence)          no
 radiation
+night_rg_threshold counting sunlit        night mask (``night_threshold``)    no
+records with photosynthesis as night
 a variable repeating one value for days   input (stuck sensor)                no
 (Rg: with the sun up)
 a day or more of records repeating        input (repeated records)            no
@@ -136,6 +138,7 @@ from .column_faults import (
     zero_coded_temperature,
 )
 from .gapfill import QUALITY_A_WINDOW_DAYS
+from .night_threshold import twilight_as_night
 from .screening import site_flag
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
@@ -1446,6 +1449,9 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
             "site's settings put none is clock or site-geometry evidence (see the clock "
             "check); these records are rejected and refilled"), False))
     dark = _dark_rg(frame, potential, config)
+    if "rg" in frame.columns:
+        findings += [Finding("night mask", text, False) for text in twilight_as_night(
+            pd.to_numeric(frame["rg"], errors="coerce"), potential, config.night_rg_threshold)]
     if dark and any(f.fatal and f.stage.startswith("nighttime") for f in findings):
         # the cause of the nighttime stages' failure: named first in run's error
         dark = [Finding(dark[0].stage, dark[0].message, True)]

@@ -79,15 +79,26 @@ class Result:
     screening_counts: pd.Series
     warnings: tuple = ()
     provenance: dict = field(default_factory=dict)
+    #: Internal: the record of the result as :func:`process` made it
+    #: (:func:`fluxpart.result_edits.as_computed`), made on creation and handed on by
+    #: ``dataclasses.replace``, pickling and copying, so that :meth:`write` refuses tables,
+    #: settings or warnings exchanged since (round mistakes39). Not a parameter to pass.
+    _computed: dict | None = field(default=None, repr=False, compare=False)
 
     def __post_init__(self):
         # the tables as computed (lazy copies), for write() to refuse tables changed since
-        from .result_edits import kept_tables
-        object.__setattr__(self, "_as_computed", kept_tables(self.tables()))
+        from .result_edits import as_computed, kept_tables
+        kept = kept_tables(self.tables())
+        object.__setattr__(self, "_as_computed", kept)
+        if self._computed is None:
+            object.__setattr__(self, "_computed", as_computed(self, kept))
 
     def __getstate__(self):
+        from .result_edits import portable
         state = dict(self.__dict__)
         state.pop("_as_computed", None)         # not pickled twice: made again on load
+        if state.get("_computed") is not None:  # the record as digests, not a second copy
+            state["_computed"] = portable(state["_computed"])
         return state
 
     def __setstate__(self, state):
@@ -157,21 +168,24 @@ class Result:
         Raises :class:`~fluxpart.errors.OutputError` where a table was changed after the
         run (a sum converted in place, a column added): the folder would hold numbers
         fluxpart did not compute under its descriptions and seal
-        (:func:`fluxpart.result_edits.changed_tables`).
+        (:func:`fluxpart.result_edits.changed_tables`); also where a table, the site, the
+        config, the warnings or the provenance was exchanged by ``dataclasses.replace``
+        or changed before the result was pickled or copied
+        (:func:`fluxpart.result_edits.changed_since_digests`).
         """
         from .errors import OutputError
-        from .result_edits import changed_tables
+        from .result_edits import changes
         from .resultdir import DEFAULT_LOCK_TIMEOUT, write_folder
 
-        kept = getattr(self, "_as_computed", None)      # made by __post_init__, __setstate__
-        changed = [] if kept is None else changed_tables(kept, self.tables())
+        changed = changes(self)
         if changed:
             raise OutputError(
                 f"Result.write: table(s) changed after the run: {', '.join(changed)}; a "
                 "result folder holds the tables fluxpart computed, described and sealed as "
                 "such (verify would vouch for the changed numbers): write your own tables "
                 "elsewhere (e.g. table.to_parquet(path)) and this result as it was computed "
-                "(process it again, or change a copy: result.annual.copy())")
+                "(process it again, or change a copy: result.annual.copy(); "
+                "dataclasses.replace and a result changed before pickling count as changes)")
         return write_folder(directory, self.tables(), site=self.site.to_dict(),
                             config=self.config.to_dict(), seed=self.config.seed,
                             provenance=self.provenance, warnings=self.warnings,

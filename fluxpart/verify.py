@@ -1567,8 +1567,9 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
             # the rerun's recorded paths are never compared (`without_paths`): an input or
             # site config given in a folder named in another code page is written escaped
             # (the scratch manifest could not hold it: "could not be written", exit 2)
+            # (_computed=None: the escaped provenance is this rerun's own, not an edit)
             again = dataclasses.replace(
-                result, provenance=escaped_paths(result.provenance)).write(
+                result, provenance=escaped_paths(result.provenance), _computed=None).write(
                 scratch / "recomputed")
         except OutputError as error:
             # a full temporary folder or the file-size limit (ulimit -f): the message named

@@ -58,8 +58,9 @@ def processed(demo_draws20_run):
     result = demo_draws20_run
     site = dataclasses.replace(result.site, name=HOSTILE_NAME)
     provenance = {"demo": {"seed": 0, "variant": "c3"}, **result.provenance}
+    # _computed=None: planted as computed (Result.write refuses a replace since mistakes39)
     return dataclasses.replace(result, site=site, provenance=provenance,
-                               warnings=(*result.warnings, HOSTILE_WARNING))
+                               warnings=(*result.warnings, HOSTILE_WARNING), _computed=None)
 
 
 def _written_and_reported(result, directory):
@@ -95,7 +96,8 @@ def older(processed, tmp_path_factory):
     result = dataclasses.replace(processed, annual=drop(processed.annual),
                                  daily=drop(processed.daily), monthly=drop(processed.monthly),
                                  timeseries=series, provenance=provenance,
-                                 parameters={**processed.parameters, "daytime": daytime})
+                                 parameters={**processed.parameters, "daytime": daytime},
+                                 _computed=None)
     return _written_and_reported(result, tmp_path_factory.mktemp("older") / "demo-2021")
 
 
@@ -108,7 +110,8 @@ def partial(processed, tmp_path_factory):
     result = dataclasses.replace(
         processed, timeseries=processed.timeseries[keep], annual=annual,
         daily=processed.daily[processed.daily.index >= pd.Timestamp("2021-03-01")],
-        monthly=processed.monthly[processed.monthly.index >= pd.Timestamp("2021-03-01")])
+        monthly=processed.monthly[processed.monthly.index >= pd.Timestamp("2021-03-01")],
+        _computed=None)                                      # planted as computed
     directory = tmp_path_factory.mktemp("partial") / "demo-2021"
     result.write(directory)
     written = read_written(directory)

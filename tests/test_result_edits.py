@@ -6,6 +6,8 @@ standard atomic weights (m)); a shallow copy under pandas copy-on-write keeps it
 when the original changes (pandas documentation, "Copy-on-Write" (m)).
 """
 import pickle
+import re
+import warnings
 
 import numpy as np
 import pandas as pd
@@ -143,3 +145,61 @@ def test_a_parameter_table_added_or_removed_is_a_change(demo_result, tmp_path):
     result.parameters["daytime"] = daytime
     result.write(tmp_path / "as_computed")
     assert (tmp_path / "as_computed" / "parameters_daytime.parquet").is_file()
+
+
+def test_a_table_exchanged_by_replace_or_changed_before_pickling_is_not_written(
+        demo_result, tmp_path):
+    """Round mistakes39: ``dataclasses.replace(result, annual=converted)`` (the way to change
+    a frozen dataclass) and a result converted in a worker and pickled back (or copied)
+    made copies of the changed tables their "as computed" ones: the folder was written
+    and sealed with annual NEE -884.7 (g CO2, 1 g C = 44.01 / 12.011 g CO2, IUPAC atomic
+    weights (m)) under its g C m-2 description. Known-truth recovery on the invented
+    Quillmoor grassland: the result as computed still writes, each exchange is named."""
+    import copy
+    import dataclasses
+
+    result = demo_result
+    converted = result.annual.assign(nee=result.annual["nee"] * 44.01 / 12.011)
+    replaced = dataclasses.replace(result, annual=converted)
+    with pytest.raises(OutputError, match=r"annual \(column 'nee' changed\)"):
+        replaced.write(tmp_path / "replaced")
+    edited = pickle.loads(pickle.dumps(result))
+    edited.annual["nee"] *= 44.01 / 12.011
+    for name, again in (("pickled", pickle.loads(pickle.dumps(edited))),
+                        ("copied", copy.copy(edited))):
+        with pytest.raises(OutputError, match=r"annual \(column 'nee' changed\)"):
+            again.write(tmp_path / name)
+    for field, value, named in (
+            ("config", fluxpart.Config(seed=7), "config (changed)"),
+            ("site", dataclasses.replace(result.site, latitude=-49.3), "site (changed)"),
+            ("warnings", result.warnings + ("a note of mine",), "warnings (changed)")):
+        with pytest.raises(OutputError, match=re.escape(named)):
+            dataclasses.replace(result, **{field: value}).write(tmp_path / field)
+    assert not any(tmp_path.iterdir())
+    # unchanged through replace, pickling and copying: written
+    for name, same in (("replace", dataclasses.replace(result)),
+                       ("pickle", pickle.loads(pickle.dumps(result))),
+                       ("deepcopy", copy.deepcopy(result))):
+        same.write(tmp_path / name)
+    assert fluxpart.load(tmp_path / "deepcopy").annual["nee"].iloc[0] == pytest.approx(
+        result.annual["nee"].iloc[0])
+
+
+def test_a_dataset_of_changed_tables_is_refused(demo_result):
+    """Round mistakes39: ``result.annual["nee"] *= 44.01 / 12.011`` then ``to_xarray()``
+    gave ``nee_annual_sum`` -884.7 labelled "g m-2 ... grams of carbon" (the grassland's
+    -241.4 g C m-2 in g CO2, IUPAC atomic weights (m)); now refused, as write is. A
+    result as computed, with only its provenance exchanged or a column added (neither is
+    exported), exports."""
+    import dataclasses
+
+    pytest.importorskip("xarray")
+    result = pickle.loads(pickle.dumps(demo_result))
+    assert "nee_annual_sum" in dataclasses.replace(result, provenance={}).to_xarray()
+    result.annual["nee_g_co2"] = result.annual["nee"] * 44.01 / 12.011   # not exported
+    assert "nee_g_co2" not in str(result.to_xarray().data_vars)
+    result.annual["nee"] *= 44.01 / 12.011
+    with pytest.raises(fluxpart.FluxpartError, match=r"annual \(column 'nee' changed\)"):
+        result.to_xarray()
+    with pytest.raises(fluxpart.FluxpartError, match=r"annual \(column 'nee' changed\)"):
+        pickle.loads(pickle.dumps(result)).to_xarray()

@@ -71,7 +71,9 @@ def _as_source(result):
     year = annual.index[0]
     annual.loc[year, ["nee", "nee_ci95_low", "nee_ci95_high"]] = [106.8, 86.4, 127.2]
     annual.loc[year, "net_uptake_t_co2_per_ha"] = -106.8 * T_PER_G
-    return dataclasses.replace(result, annual=annual)
+    # _computed=None: a planted answer written as if computed (Result.write refuses a table
+    # exchanged by replace since round mistakes39)
+    return dataclasses.replace(result, annual=annual, _computed=None)
 
 
 def _spans(text):

@@ -1,0 +1,64 @@
+"""A night threshold of Rg that counts sunlit records with photosynthesis as night
+(round mistakes39).
+
+Outside facts: about 45-50 % of global radiation is photosynthetically active, at
+4.57 µmol J-1 (McCree 1972 (m)), so 20 W m-2 of Rg carries a PPFD of about 40-46 µmol m-2
+s-1, at or above the light compensation point of C3 leaves (about 10-40 µmol m-2 s-1,
+textbook value (m)); night thresholds in use are 5-20 W m-2 (common practice (m)).
+Known-truth recovery on the invented Quillmoor grassland of ``fluxpart.demo``.
+"""
+import numpy as np
+import pytest
+
+import fluxpart
+from fluxpart import demo
+from fluxpart.night_threshold import PHOTOSYNTHESIS_RG, twilight_as_night
+from fluxpart.solar import potential_radiation
+
+
+@pytest.fixture(scope="module")
+def grassland():
+    frame, _ = demo.site_year(seed=0)
+    site = demo.site()
+    potential = potential_radiation(frame.index, site.latitude, site.longitude, site.utc_offset)
+    return frame, potential
+
+
+def test_photosynthesis_limit_is_the_ppfd_of_leaves_light_compensation():
+    ppfd = PHOTOSYNTHESIS_RG * np.array([0.45, 0.5]) * 4.57        # McCree (1972) (m)
+    assert 40.0 <= ppfd.min() and ppfd.max() <= 46.0
+
+
+def test_thresholds_in_use_are_quiet_and_higher_ones_named(grassland):
+    """10 (default) and 20 W m-2 quiet; 30 and 50 named with the sunlit records they take
+    as night (before round mistakes39 silent: nighttime Reco -31.7 and -69.3 g C m-2)."""
+    frame, potential = grassland
+    rg = frame["rg"].to_numpy()
+    assert twilight_as_night(rg, potential, 10.0) == []
+    assert twilight_as_night(rg, potential, 20.0) == []
+    for threshold in (30.0, 50.0):
+        [text] = twilight_as_night(rg, potential, threshold)
+        sunlit = int(((potential > 0) & (rg >= 20.0) & (rg < threshold)).sum())
+        assert f"counts {sunlit} records with the sun up" in text
+        assert "night_rg_threshold = 10" in text
+
+
+def test_a_threshold_raised_above_an_offset_at_night_is_quiet(grassland):
+    """The preflight's own advice for a pyranometer reading 25 W m-2 in the dark: a
+    threshold of 35 W m-2 is 10 above the offset, as the default is above 0."""
+    frame, potential = grassland
+    offset = frame["rg"].to_numpy() + 25.0
+    assert twilight_as_night(offset, potential, 35.0) == []
+    assert "Rg at night 25 W m-2" in twilight_as_night(offset, potential, 50.0)[0]
+
+
+def test_the_preflight_names_it(grassland):
+    """Wired into the preflight's findings (so `check` and `process` name it), not fatal."""
+    from fluxpart.preflight import preflight
+
+    frame, potential = grassland
+    config = fluxpart.Config(night_rg_threshold=40.0)
+    found = preflight(frame, frame, frame["rg"].to_numpy() < 40.0, potential,
+                      np.zeros(len(frame), bool), demo.site().latitude, config, 30)
+    [named] = [f for f in found if "night_rg_threshold = 40 W m-2 counts" in f.message]
+    assert named.stage == "night mask" and not named.fatal
