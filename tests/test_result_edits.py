@@ -7,7 +7,6 @@ when the original changes (pandas documentation, "Copy-on-Write" (m)).
 """
 import pickle
 import re
-import warnings
 
 import numpy as np
 import pandas as pd
