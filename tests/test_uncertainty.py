@@ -429,8 +429,12 @@ def test_artificial_gaps_score_a_biased_fill():
     assert 2 / 3 * expected < scored <= 4 / 3 * expected
     model = gapfill_error_model(errors)
     assert model["bias"].to_numpy() == pytest.approx([0.5, 0.5], abs=0.1)
-    # Fill error is a constant: no variance beyond the measurement noise removed
-    assert (model["correlated_variance"] < 0.01).all()
+    # Fill error is a constant: no variance beyond the measurement noise (σ² = 1) removed;
+    # the estimate of b (truly 0) scatters with the draw (up to ~0.02 over seeds and
+    # rounds), so: the shared part b·n² of a gap of the mean scored length n stays below
+    # 5 % of its noise n·σ²
+    mean_records = errors["records"].mean()
+    assert (model["correlated_variance"] * mean_records < 0.05).all()
 
 
 def test_e0_sensitivity_keeps_night_sums_and_raises_warm_records():
