@@ -228,7 +228,10 @@ class Config:
         site-years of the three generated benchmarks (release 0.29.0): 16 changed (their
         annual NEE in 5, only intervals in 11); RMS NEE error 5.82 / 8.48 / 9.26 → 5.84 / 8.50 / 9.33 g C m-2,
         no coverage changed. ``"off"``: no
-        such regressor.
+        such regressor. Only the local-linear estimate with separate night donors moves
+        a night fill by a regressor: with ``gapfill_estimate = "donor_mean"`` or
+        ``gapfill_donors = "similar_conditions_only"`` nothing is tested and
+        ``night_fill_light`` is empty (review45).
     gapfill_min_donors : int
         Fewest records a gap-filling pass must average to fill an NEE gap; 3, our
         choice: one record's random error or an undetected spike must not set a

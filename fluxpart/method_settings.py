@@ -23,6 +23,34 @@ DARK_FIRST = "dark_first"
 OTHER_TEMPERATURE = {"tair": "tsoil", "tsoil": "tair"}
 
 
+def night_light_tested(config) -> bool:
+    """Whether the NEE fills are to test and take the preceding day's light.
+
+    Only the local-linear estimate of separate night donors moves a night fill by a
+    regressor (:func:`fluxpart.gapfill.fill_marginal`); with ``gapfill_estimate =
+    "donor_mean"`` or ``gapfill_donors = "similar_conditions_only"`` the column would act
+    on nothing, yet its yearly tests would stand in the provenance as if it had.
+
+    Parameters
+    ----------
+    config : Config
+        Settings (``gapfill_night_light``, ``gapfill_estimate``, ``gapfill_donors``).
+
+    Returns
+    -------
+    bool
+        True where ``gapfill_night_light = "tested"`` and the fills can take it.
+
+    References
+    ----------
+    Reichstein, M. et al. (2005), Appendix A (marginal distribution sampling: its separate
+    night donors, which the local-linear estimate of this project refines).
+    """
+    return (config.gapfill_night_light == "tested"
+            and config.gapfill_estimate == "local_linear"
+            and config.gapfill_donors != "similar_conditions_only")
+
+
 def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, values_only=False,
              sun_up=None):
     """MDS gap filling of NEE with the configured settings (also scored on artificial gaps).

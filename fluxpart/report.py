@@ -719,24 +719,46 @@ def _setting_value(value) -> str:
     return str(value)
 
 
-def _fill_estimate(config: dict, soil: bool = False) -> str:
+def _fill_estimate(config: dict, soil: bool = False, light_tests=None) -> str:
     """How an NEE fill of the similarity steps was made, as the result's config says (a
     result written before 0.21.0 has no ``gapfill_estimate``: its fills were means);
     `soil`: the night fills also regressed on soil temperature (a result of 0.22.0 or
-    later with a ``tsoil`` column, :func:`_soil_regressor`)."""
+    later with a ``tsoil`` column, :func:`_soil_regressor`); `light_tests`: the central
+    fill's yearly tests of the preceding day's light (``provenance["night_fill_light"]``;
+    None where the result has none)."""
     if config.get("gapfill_estimate", "donor_mean") == "local_linear":
         night = (" (for night gaps also on soil temperature, which chooses no donor: calm "
                  "nights cool the air, not the soil)" if soil else "")
-        if config.get("gapfill_night_light") == "tested":
-            night += (" (for night gaps, in the years whose measured nights respired more "
-                      "after sunnier days at the same temperature, a one-sided test at 1 %, "
-                      "also on the preceding 24 h mean Rg: the calm nights the u* filter "
-                      "removes follow sunny days)")
         return ("Each NEE fill of the similarity steps is the similar records' mean moved by "
-                "the flux's local slope on Rg, Tair and VPD" + night + " times their offset "
+                "the flux's local slope on Rg, Tair and VPD" + night
+                + _night_light(config, light_tests) + " times their offset "
                 "from the gap (a local-linear estimate, our refinement: a gap at the edge of "
                 "its donors' conditions is not filled at their level).")
     return "Each fill is the mean of the similar records."
+
+
+def _night_light(config: dict, tests) -> str:
+    """The night fills' regressor on the preceding 24 h mean Rg, as the result's config and
+    its provenance's yearly tests say: the years it was taken in, or that it was taken in
+    none (review45: "in the years whose nights showed it" was said of results where no year
+    passed, and of fills without separate night donors, where it acts on nothing)."""
+    if (config.get("gapfill_night_light") != "tested"
+            or config.get("gapfill_donors") == "similar_conditions_only"):
+        return ""
+    why = "the calm nights the u* filter removes follow sunny days"
+    passed = None if tests is None else [str(t["year"]) for t in tests if t.get("passed")]
+    if passed is None:
+        return (" (for night gaps also on the preceding 24 h mean Rg in the years whose "
+                "measured nights respired more after sunnier days at the same temperature, "
+                f"a one-sided test at 1 %: {why})")
+    if not passed:
+        return (" (the preceding 24 h mean Rg, for night gaps in the years whose measured "
+                "nights respire more after sunnier days at the same temperature, a one-sided "
+                f"test at 1 %, was taken in no year: {why})")
+    whose = "that year's" if len(passed) == 1 else "those years'"
+    return (f" (for night gaps in {', '.join(passed)} also on the preceding 24 h mean Rg: "
+            f"{whose} measured nights respired more after sunnier days at the same "
+            f"temperature, a one-sided test at 1 %, and {why})")
 
 
 def _fill_donors(config: dict) -> str:
@@ -839,7 +861,7 @@ def _respiration_methods(config: dict) -> tuple[str, list[str]]:
 
 
 def _methods(config: dict, has_random: bool, soil: bool = False,
-             windows_cut: bool = False) -> tuple[str, list[str]]:
+             windows_cut: bool = False, light_tests=None) -> tuple[str, list[str]]:
     cited = ["papale2006", "reichstein2005", "lloyd1994", "lasslop2010", "kopp2011"]
     method = config.get("ustar_method", "moving_point")
     if method == "moving_point":
@@ -870,7 +892,7 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
         f"u* threshold: {ustar}. Night records below the threshold are removed.",
         "Gap filling of NEE and the drivers by marginal distribution sampling (Reichstein et "
         "al. 2005, appendix): similar Rg, Tair and VPD within widening time windows, then the "
-        f"mean diurnal course; fill quality classes A, B, C. {_fill_estimate(config, soil)}"
+        f"mean diurnal course; fill quality classes A, B, C. {_fill_estimate(config, soil, light_tests)}"
         f"{_fill_donors(config)}{_fill_events(config, windows_cut)}",
         "Nighttime partitioning: Lloyd–Taylor respiration (Lloyd & Taylor 1994); E0 per year "
         f"from the night data with a free Rref in each {_setting_value(config.get('e0_window_days'))}"
@@ -1136,7 +1158,8 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
     ]
     config = written.config
     methods, cited = _methods(config, has_random, _soil_regressor(written),
-                              _windows_cut(written))
+                              _windows_cut(written),
+                              manifest.get("provenance", {}).get("night_fill_light"))
     references = "".join(f"<li>{_e(_REFERENCES[key])}</li>" for key in cited)
     extra_caution = ("" if caution == CAUTION
                      else f'<p class="caution">{_e(caution)}</p>')

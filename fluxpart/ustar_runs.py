@@ -32,7 +32,13 @@ from . import (
     uncertainty,
 )
 from .errors import InsufficientDataError
-from .method_settings import event_cut, fill_nee, nighttime_settings, respiration_temperature
+from .method_settings import (
+    event_cut,
+    fill_nee,
+    night_light_tested,
+    nighttime_settings,
+    respiration_temperature,
+)
 from .partition import daytime, nighttime
 
 
@@ -93,7 +99,7 @@ def run_inputs(frame, screened, is_night, potential_radiation, config) -> RunInp
     if config.gapfill_clearness_tolerance > 0:
         conditions["clearness"] = gapfill.clearness_index(
             conditions["rg"].to_numpy(), potential_radiation)
-    if config.gapfill_night_light == "tested":
+    if night_light_tested(config):
         step = (screened.index[1] - screened.index[0]) if len(screened.index) > 1 else None
         per_day = 1 if step is None else int(round(pd.Timedelta(days=1) / step))
         conditions[preceding_light.COLUMN] = preceding_light.preceding_day_rg(

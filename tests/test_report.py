@@ -1222,6 +1222,32 @@ def test_methods_name_the_fill_estimate_the_result_was_made_with():
     assert abs(fills["local_linear"] - truth) < 0.2 * abs(fills["donor_mean"] - truth)
 
 
+def test_methods_name_the_years_the_night_fills_took_the_preceding_days_light():
+    """review45: the methods said the night fills took the preceding 24 h mean Rg "in the
+    years whose measured nights" showed it also where no year passed (the demo) and where
+    no night fill can take a regressor; now they name the years of the result's
+    provenance, or that none passed (the report draws only what was written)."""
+    def gap_filling_item(config, tests):
+        listed, _ = report._methods(config, False, light_tests=tests)
+        return html.unescape(next(item for item in listed.split("<li>")
+                                  if item.startswith("Gap filling")))
+
+    config = {"gapfill_estimate": "local_linear", "gapfill_night_light": "tested",
+              "gapfill_donors": "separate_day_night"}
+    tests = [{"year": 2021, "passed": True}, {"year": 2022, "passed": False},
+             {"year": 2023, "passed": True}]
+    item = gap_filling_item(config, tests)
+    assert "for night gaps in 2021, 2023 also on the preceding 24 h mean Rg" in item
+    assert "2022" not in item
+    item = gap_filling_item(config, [{"year": 2022, "passed": False}])
+    assert "taken in no year" in item and "2022" not in item
+    assert "in the years whose measured nights" in gap_filling_item(config, None)
+    for other in ({"gapfill_night_light": "off"},
+                  {"gapfill_donors": "similar_conditions_only"},
+                  {"gapfill_estimate": "donor_mean"}):
+        assert "preceding 24 h" not in gap_filling_item({**config, **other}, tests)
+
+
 def test_methods_name_the_respiration_form_and_temperature_the_result_used(folder):
     """The methods said "Nighttime partitioning: Lloyd–Taylor respiration" alone, while
     a default run's central nighttime Reco is the BIC-weighted average of Lloyd–Taylor
