@@ -42,9 +42,9 @@ def test_vpd_and_ustar_exchanged_from_july_are_named():
     written_ustar[later] = vpd[later] / 10                       # the file's kPa
     text = vpd_exchanged_in_months(tair, rh, written_vpd,
                                    {"ustar": written_ustar, "tsoil": others["tsoil"]},
-                                   stamps, {"vpd": "VPD", "ustar": "USTAR"})
+                                   stamps, {"vpd": "VPD", "ustar": "u_fric"})
     assert text is not None
-    assert "6 month(s) (2021-07 to 2021-12)" in text and "'USTAR' (ustar)" in text
+    assert "6 month(s) (2021-07 to 2021-12)" in text and "'u_fric' (ustar)" in text
 
 
 def test_vpd_and_soil_temperature_exchanged_for_a_month_are_named():

@@ -647,7 +647,7 @@ tsoil = "t_soil_5cm"
     elif site.key == "E":  # semicolons, decimal commas, start stamps, mg CO2, RH, storage
         body = pd.DataFrame({
             "Datum": idx.strftime("%d.%m.%Y %H:%M"),
-            "Fc_turb": fmt(data.nee * MG_CO2_PER_UMOL, 5, "-9999"),
+            "co2_turbflux": fmt(data.nee * MG_CO2_PER_UMOL, 5, "-9999"),
             "Sc_profile": fmt(data.storage * MG_CO2_PER_UMOL, 5, "-9999"),
             "Globalstr": fmt(data.rg, 1, "-9999"), "Tluft": fmt(data.tair, 2, "-9999"),
             "rF": fmt(data.rh, 1, "-9999"), "ustern": fmt(data.ustar, 3, "-9999"),
@@ -664,7 +664,7 @@ time_column = "Datum"
 time_format = "%d.%m.%Y %H:%M"
 time_marks = "start"
 missing = [-9999]
-""", """nee = "Fc_turb"
+""", """nee = "co2_turbflux"
 storage = "Sc_profile"
 rg = "Globalstr"
 tair = "Tluft"
@@ -724,20 +724,20 @@ tsoil = "tsoil"
     elif site.key == "H":  # PPFD, ISO end stamps, NaN
         body = pd.DataFrame({
             "TIMESTAMP_END": (idx + step).strftime("%Y-%m-%dT%H:%M:%S"),
-            "FC": fmt(data.nee, 3, "NaN"), "PPFD_IN": fmt(data.ppfd, 1, "NaN"),
+            "co2_flux": fmt(data.nee, 3, "NaN"), "PPFD_IN": fmt(data.ppfd, 1, "NaN"),
             "TA": fmt(data.tair, 2, "NaN"), "VPD": fmt(data.vpd, 2, "NaN"),
-            "USTAR": fmt(data.ustar, 3, "NaN"), "TS": fmt(data.tsoil, 2, "NaN")})
+            "u_fric": fmt(data.ustar, 3, "NaN"), "t_soil5": fmt(data.tsoil, 2, "NaN")})
         body.to_csv(folder / "kvitskar.csv", index=False)
         text = toml_site(site, """path = "kvitskar.csv"
 time_column = "TIMESTAMP_END"
 time_format = "%Y-%m-%dT%H:%M:%S"
 time_marks = "end"
-""", """nee = "FC"
+""", """nee = "co2_flux"
 ppfd = "PPFD_IN"
 tair = "TA"
 vpd = "VPD"
-ustar = "USTAR"
-tsoil = "TS"
+ustar = "u_fric"
+tsoil = "t_soil5"
 """, processing=processing)
     elif site.key == "P":  # UTC stamps with an offset, start stamps
         utc = idx - pd.Timedelta(hours=site.utc_offset)

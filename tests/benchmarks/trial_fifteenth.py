@@ -560,7 +560,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
     if k == "M":  # end stamps with seconds, PPFD, RH %, a units line, "NAN"
         end = idx + step
         frame = pd.DataFrame({
-            "TIMESTAMP": end.strftime("%Y-%m-%d %H:%M:%S"), "Fc_wpl": fmt(data.nee, 3, "NAN"),
+            "stamp_end": end.strftime("%Y-%m-%d %H:%M:%S"), "co2_dens_corr": fmt(data.nee, 3, "NAN"),
             "PAR_dn": fmt(data.rg * 2.1, 1, "NAN"), "T_air": fmt(data.tair, 2, "NAN"),
             "RH_air": fmt(data.rh, 1, "NAN"), "u_fric": fmt(data.ustar, 3, "NAN"),
             "T_sed": fmt(data.tsoil, 2, "NAN"), "WaterLvl": fmt(data.level, 3, "NAN")})
@@ -568,9 +568,9 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
         units = "TS,umol/m2/s,umol/m2/s,degC,%,m/s,degC,m"
         (folder / "saltgrass_flux.csv").write_text(body[0] + "\n" + units + "\n" + body[1])
         text = toml(site, 'path = "saltgrass_flux.csv"\nrows_after_header = 1\n'
-                    'time_column = "TIMESTAMP"\ntime_format = "%Y-%m-%d %H:%M:%S"\n'
+                    'time_column = "stamp_end"\ntime_format = "%Y-%m-%d %H:%M:%S"\n'
                     'time_marks = "end"\nmissing = ["NAN"]\n',
-                    'nee = "Fc_wpl"\nppfd = "PAR_dn"\ntair = "T_air"\nrh = "RH_air"\n'
+                    'nee = "co2_dens_corr"\nppfd = "PAR_dn"\ntair = "T_air"\nrh = "RH_air"\n'
                     'ustar = "u_fric"\ntsoil = "T_sed"\n', processing=processing)
     elif k == "K":  # 15-minute semicolon files; the user averages them to 30 minutes
         end = idx + step
@@ -598,14 +598,14 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
         frame = pd.DataFrame({
             "DateTime": end.strftime("%Y/%m/%d %H:%M"), "NEE": fmt(data.nee, 3, "-9999"),
             "SWdown": fmt(data.rg, 1, "-9999"), "TA_K": fmt(data.tair + 273.15, 2, "-9999"),
-            "VPD_kPa": fmt(data.vpd / 10, 3, "-9999"), "USTAR": fmt(data.ustar, 3, "-9999"),
+            "VPD_kPa": fmt(data.vpd / 10, 3, "-9999"), "u_fric": fmt(data.ustar, 3, "-9999"),
             "TS_5cm": fmt(data.tsoil, 2, "-9999")})
         frame.to_csv(folder / "drywash_hourly.txt", sep="\t", index=False)
         text = toml(site, 'path = "drywash_hourly.txt"\ndelimiter = "\\t"\n'
                     'time_column = "DateTime"\ntime_format = "%Y/%m/%d %H:%M"\n'
                     'time_marks = "end"\nmissing = [-9999]\n',
                     'nee = "NEE"\nrg = "SWdown"\ntair = "TA_K"\nvpd = "VPD_kPa"\n'
-                    'ustar = "USTAR"\ntsoil = "TS_5cm"\n', 'vpd = "kPa"\ntair = "K"\n',
+                    'ustar = "u_fric"\ntsoil = "TS_5cm"\n', 'vpd = "kPa"\ntair = "K"\n',
                     processing)
     elif k == "B":  # compact start stamps, RH fraction, mg CO2
         frame = pd.DataFrame({

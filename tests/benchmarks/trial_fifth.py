@@ -54,7 +54,7 @@ constant or form of this script with no source):
   evapotranspiration 0.61 Delta / (Delta + gamma) Rs / lambda - 0.12 mm d-1 (m) scaled by
   canopy cover and by the bucket's fullness below 60 % (common practice).
 - soil temperature at 5 cm: the air-temperature recursion of Kang et al. (2000) (m),
-  Ts += (Ta - Ts) (1 - exp(-dt / tau)) exp(-0.3 LAI), tau = 18 h (invented), tau x 25 and a
+  T_soil += (T_air - T_soil) (1 - exp(-dt / tau)) exp(-0.3 LAI), tau = 18 h (invented), tau x 25 and a
   target of -0.3 degC under snow (latent heat holds the soil near freezing, common knowledge
   of snow hydrology (m)).
 - canopy: thermal green-up and cuts for meadows (first-order regrowth 0.07 d-1, invented),
@@ -69,10 +69,10 @@ constant or form of this script with no source):
   Jarvis (1976) linear decline above 1 kPa (m; slope invented); soil water linear between
   12 % and 45 % of the bucket (common practice).
 - Reco = soil + leaf + growth + rewetting pulses:
-  soil R10 exp(b (Ts - 10) + c (Ts^2 - 100)), b = 0.115 K-1, c = -0.0011 K-2 (the
+  soil R10 exp(b (T_soil - 10) + c (T_soil^2 - 100)), b = 0.115 K-1, c = -0.0011 K-2 (the
   Gaussian-exponential form of O'Connell 1990 and Tuomi et al. 2008 (m); constants invented)
   times a soil-water factor (invented) and a residue factor after harvest (+50 % decaying over
-  40 days, invented); leaf R25 LAI Q10^((Ta - 25) / 10) with Q10 = 3.09 - 0.043 Ta (Tjoelker et
+  40 days, invented); leaf R25 LAI Q10^((T_air - 25) / 10) with Q10 = 3.09 - 0.043 T_air (Tjoelker et
   al. 2001 (m)), inhibited in light by k (1 - exp(-PPFD / 80)), k = 0.20-0.50 (Kok 1948;
   Brooks & Farquhar 1985; Heskel et al. 2012 (m): 20-50 % below the dark rate, saturating near
   100-200 umol m-2 s-1); growth respiration (1 - Yg) / Yg x the carbon of new leaves,

@@ -585,7 +585,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
         hhmm = np.where((end.hour == 0) & (end.minute == 0), 2400, end.hour * 100 + end.minute)
         frame = pd.DataFrame({"Yr": last.year, "DOY": last.day_of_year, "HrMn": hhmm,
                               "Fco2": fmt(data.nee, 3, "-9999"), "SWin": fmt(data.rg, 1, "-9999"),
-                              "Ta": fmt(data.tair, 2, "-9999"), "RHa": fmt(data.rh, 1, "-9999"),
+                              "t_air2": fmt(data.tair, 2, "-9999"), "RHa": fmt(data.rh, 1, "-9999"),
                               "Ustr": fmt(data.ustar, 3, "-9999"),
                               "Ts5": fmt(data.tsoil, 2, "-9999")})
         lines = [" ".join(f"{c:>8s}" for c in frame.columns)]
@@ -594,7 +594,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
         text = toml(site, 'path = "kaldvik_flux.dat"\ndelimiter = "whitespace"\n'
                     'time_column = ["Yr", "DOY", "HrMn"]\ntime_format = "%Y %j %H%M"\n'
                     'time_marks = "end"\nmissing = [-9999]\n',
-                    'nee = "Fco2"\nrg = "SWin"\ntair = "Ta"\nrh = "RHa"\nustar = "Ustr"\n'
+                    'nee = "Fco2"\nrg = "SWin"\ntair = "t_air2"\nrh = "RHa"\nustar = "Ustr"\n'
                     'tsoil = "Ts5"\n', processing=processing)
     elif k == "D":  # semicolons, decimal commas, ISO end stamps, VPD in kPa
         end = idx + step
@@ -625,7 +625,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
             "CO2_FLX": fmt(nee_mg, 5, "-9999"), "QC_CO2": flag,
             "PAR_IN": fmt(data.rg * 2.10, 1, "-9999"), "AIR_T": fmt(data.tair + 273.15, 2,
                                                                     "-9999"),
-            "VPD_AIR": fmt(data.vpd, 2, "-9999"), "USTAR": fmt(data.ustar, 3, "-9999"),
+            "VPD_AIR": fmt(data.vpd, 2, "-9999"), "u_fric": fmt(data.ustar, 3, "-9999"),
             "SOIL_T_5": fmt(data.tsoil, 2, "-9999")})
         units_line = "date,mg/m2/s,-,umol/m2/s,K,hPa,m/s,C"
         body = frame.to_csv(index=False).split("\n", 1)
@@ -637,7 +637,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
                     'time_format = "%m/%d/%Y %H:%M"\ntime_marks = "end"\nmissing = [-9999]\n'
                     'flag_accept = [0, 1]\n',
                     'nee = "CO2_FLX"\nnee_flag = "QC_CO2"\nppfd = "PAR_IN"\ntair = "AIR_T"\n'
-                    'vpd = "VPD_AIR"\nustar = "USTAR"\ntsoil = "SOIL_T_5"\n',
+                    'vpd = "VPD_AIR"\nustar = "u_fric"\ntsoil = "SOIL_T_5"\n',
                     'nee = "mg CO2 m-2 s-1"\ntair = "K"\n', processing)
     elif k == "H":  # two yearly tab files, UTC start stamps with a literal Z, VPD in Pa
         utc = idx - pd.Timedelta(hours=site.utc_offset)

@@ -299,14 +299,14 @@ def write_files(s: SiteYear, frame: pd.DataFrame, folder: Path) -> Path:
            "rh_pct": ("RH", frame["rh"]), "rh_frac": ("RH_frac", frame["rh"] / 100)}
     col, val = hum[s.humidity]
     out[col] = np.where(dm, np.nan, val)
-    out["USTAR"] = frame["ustar"]
+    out["u_fric"] = frame["ustar"]
     out = out.round(4)
     out.to_csv(csv, index=False, na_rep="-9999")
 
     cols = {"nee": "FCO2_mg" if s.nee_unit == "mg" else "FCO2",
             ("ppfd" if s.radiation == "ppfd" else "rg"): "PAR_in" if s.radiation == "ppfd"
             else "SWin",
-            "tair": "T_air", "ustar": "USTAR"}
+            "tair": "T_air", "ustar": "u_fric"}
     if s.write_tsoil:
         cols["tsoil"] = "T_soil10"
     cols["vpd" if s.humidity.startswith("vpd") else "rh"] = col

@@ -704,9 +704,9 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing: str = "
         for tag, part in (("15", data), ("30", to_30min(data))):
             body = pd.DataFrame({
                 "TIMESTAMP_START": part.index.strftime("%Y%m%d%H%M"),
-                "FC": fmt(part.nee, 3, "-9999"), "SW_IN": fmt(part.rg, 1, "-9999"),
+                "co2_flux": fmt(part.nee, 3, "-9999"), "sw_down": fmt(part.rg, 1, "-9999"),
                 "TA": fmt(part.tair, 2, "-9999"), "VPD": fmt(part.vpd, 2, "-9999"),
-                "USTAR": fmt(part.ustar, 3, "-9999"), "TS": fmt(part.tsoil, 2, "-9999"),
+                "u_fric": fmt(part.ustar, 3, "-9999"), "t_soil5": fmt(part.tsoil, 2, "-9999"),
             })
             body.to_csv(folder / f"hollenbrunn_{tag}min.csv", index=False)
             text = toml_site(site, f"""path = "hollenbrunn_{tag}min.csv"
@@ -714,19 +714,19 @@ time_column = "TIMESTAMP_START"
 time_format = "%Y%m%d%H%M"
 time_marks = "start"
 missing = [-9999]
-""", """nee = "FC"
-rg = "SW_IN"
+""", """nee = "co2_flux"
+rg = "sw_down"
 tair = "TA"
 vpd = "VPD"
-ustar = "USTAR"
-tsoil = "TS"
+ustar = "u_fric"
+tsoil = "t_soil5"
 """, processing=processing)
             (folder / f"site_D_{tag}.toml").write_text(text)
         return "site_D_30.toml"
     if site.key == "S":  # semicolon, end stamps day-first, VPD in kPa
         stamps = idx + step
         body = pd.DataFrame({
-            "datetime": stamps.strftime("%d/%m/%Y %H:%M"), "Fc": fmt(data.nee, 3, "-999"),
+            "datetime": stamps.strftime("%d/%m/%Y %H:%M"), "co2_flx": fmt(data.nee, 3, "-999"),
             "Rs": fmt(data.rg, 1, "-999"), "Tair": fmt(data.tair, 2, "-999"),
             "VPD_kPa": fmt(data.vpd / 10, 3, "-999"), "ustar": fmt(data.ustar, 3, "-999"),
             "Tsoil5": fmt(data.tsoil, 2, "-999"),
@@ -738,7 +738,7 @@ time_column = "datetime"
 time_format = "%d/%m/%Y %H:%M"
 time_marks = "end"
 missing = [-999]
-""", """nee = "Fc"
+""", """nee = "co2_flx"
 rg = "Rs"
 tair = "Tair"
 vpd = "VPD_kPa"
@@ -751,8 +751,8 @@ tsoil = "Tsoil5"
             body = pd.DataFrame({
                 "Time_mid": (part.index + step / 2).strftime("%Y-%m-%d %H:%M:%S"),
                 "NEE": fmt(part.nee, 3, "NaN"), "Rg": fmt(part.rg, 1, "NaN"),
-                "Ta": fmt(part.tair, 2, "NaN"), "VPD": fmt(part.vpd, 2, "NaN"),
-                "Ustar": fmt(part.ustar, 3, "NaN"), "Ts": fmt(part.tsoil, 2, "NaN"),
+                "t_air2": fmt(part.tair, 2, "NaN"), "VPD": fmt(part.vpd, 2, "NaN"),
+                "Ustar": fmt(part.ustar, 3, "NaN"), "tsoil_5": fmt(part.tsoil, 2, "NaN"),
             })
             body.to_csv(folder / f"lindenau_{year}.tsv", sep="\t", index=False)
         text = toml_site(site, """path = "lindenau_*.tsv"
@@ -763,10 +763,10 @@ time_marks = "middle"
 missing = ["NaN"]
 """, """nee = "NEE"
 rg = "Rg"
-tair = "Ta"
+tair = "t_air2"
 vpd = "VPD"
 ustar = "Ustar"
-tsoil = "Ts"
+tsoil = "tsoil_5"
 """, processing=processing)
     elif site.key == "G":  # whitespace, year / day of year / hhmm at the interval end
         stamps = idx + step
@@ -775,9 +775,9 @@ tsoil = "Ts"
         hhmm = np.where(hhmm == 0, 2400, hhmm)
         cols = {"Year": dayof.year.astype(str), "DOY": dayof.day_of_year.astype(str),
                 "HHMM": hhmm.astype(str), "NEE": fmt(data.nee, 3, "-9999"),
-                "Rg": fmt(data.rg, 1, "-9999"), "Ta": fmt(data.tair, 2, "-9999"),
+                "Rg": fmt(data.rg, 1, "-9999"), "t_air2": fmt(data.tair, 2, "-9999"),
                 "VPD": fmt(data.vpd, 2, "-9999"), "ustar": fmt(data.ustar, 3, "-9999"),
-                "Ts": fmt(data.tsoil, 2, "-9999")}
+                "tsoil_5": fmt(data.tsoil, 2, "-9999")}
         table = np.column_stack([np.asarray(v) for v in cols.values()])
         lines = [" ".join(cols)] + [" ".join(r) for r in table]
         (folder / "ballyroe.txt").write_text("\n".join(lines) + "\n")
@@ -789,10 +789,10 @@ time_marks = "end"
 missing = [-9999]
 """, """nee = "NEE"
 rg = "Rg"
-tair = "Ta"
+tair = "t_air2"
 vpd = "VPD"
 ustar = "ustar"
-tsoil = "Ts"
+tsoil = "tsoil_5"
 """, processing=processing)
     elif site.key == "C":  # UTC start stamps with Z, a flag column and wind direction
         stamps = (idx - pd.Timedelta(hours=site.utc_offset)).strftime("%Y-%m-%dT%H:%M:%SZ")
@@ -823,8 +823,8 @@ nee_flag = "qc_sector"
         body = pd.DataFrame({
             "END": stamps.strftime("%Y-%m-%d %H:%M"), "NEE": fmt(data.nee, 3, "NA"),
             "RG": fmt(data.rg, 1, "NA"), "TA": fmt(data.tair, 2, "NA"),
-            "RH": fmt(data.rh, 1, "NA"), "USTAR": fmt(data.ustar, 3, "NA"),
-            "TS": fmt(data.tsoil, 2, "NA"),
+            "RH": fmt(data.rh, 1, "NA"), "u_fric": fmt(data.ustar, 3, "NA"),
+            "t_soil5": fmt(data.tsoil, 2, "NA"),
         })
         body.to_csv(folder / "pra_lunghin.csv", index=False)
         text = toml_site(site, """path = "pra_lunghin.csv"
@@ -836,8 +836,8 @@ missing = ["NA"]
 rg = "RG"
 tair = "TA"
 rh = "RH"
-ustar = "USTAR"
-tsoil = "TS"
+ustar = "u_fric"
+tsoil = "t_soil5"
 """, processing=processing)
     else:
         raise ValueError(site.key)

@@ -62,7 +62,7 @@ Models (textbook forms, each with its source; "(m)" = recalled from memory):
   common practice).
 - Reco: autotrophic part = a share of the previous day's mean GPP (a one-day lag), with a
   Q10 of 1.8 on the air temperature's departure from its daily mean (common practice) plus
-  heterotrophic part = R10 Q10(t)^((Ts - 10) / 10) with a Q10 that is higher in the cold season
+  heterotrophic part = R10 Q10(t)^((T_soil - 10) / 10) with a Q10 that is higher in the cold season
   (seasonal Q10, Janssens & Pilegaard 2003 (m)), a soil-water limitation, a rewetting pulse
   after rain on dry soil (Birch 1958 (m)), reduced respiration in flooded soil, and a floor
   under snow.

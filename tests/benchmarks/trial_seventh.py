@@ -687,22 +687,22 @@ tsoil = "Tsoil5"
     elif site.key == "C":  # ISO 8601 with +10:00 at the interval middle, kPa, NA
         stamps = (idx + step / 2).strftime("%Y-%m-%dT%H:%M:%S+10:00")
         body = pd.DataFrame({
-            "TIMESTAMP": stamps, "co2_net": fmt(data.nee, 3, "NA"), "sol_dn": fmt(data.rg, 1, "NA"),
-            "Ta": fmt(data.tair, 2, "NA"), "VPD_kPa": fmt(data.vpd / 10, 3, "NA"),
-            "ustar": fmt(data.ustar, 3, "NA"), "Ts": fmt(data.tsoil, 2, "NA"),
+            "logger_stamp": stamps, "co2_net": fmt(data.nee, 3, "NA"), "sol_dn": fmt(data.rg, 1, "NA"),
+            "t_air2": fmt(data.tair, 2, "NA"), "VPD_kPa": fmt(data.vpd / 10, 3, "NA"),
+            "ustar": fmt(data.ustar, 3, "NA"), "tsoil_5": fmt(data.tsoil, 2, "NA"),
         })
         body.to_csv(folder / "mirrabool_hourly.csv", index=False)
         text = toml_site(site, """path = "mirrabool_hourly.csv"
-time_column = "TIMESTAMP"
+time_column = "logger_stamp"
 time_format = "ISO8601"
 time_marks = "middle"
 missing = ["NA"]
 """, """nee = "co2_net"
 rg = "sol_dn"
-tair = "Ta"
+tair = "t_air2"
 vpd = "VPD_kPa"
 ustar = "ustar"
-tsoil = "Ts"
+tsoil = "tsoil_5"
 """, 'vpd = "kPa"\n')
     elif site.key == "D":  # tab, two title lines, UTC start stamps, PPFD, NaN
         stamps = idx - pd.Timedelta(hours=site.utc_offset)
@@ -735,9 +735,9 @@ tsoil = "T_soil"
         stamps = utc.tz_convert("America/Toronto").tz_localize(None)
         body = pd.DataFrame({
             "TimeStamp": stamps.strftime("%Y-%m-%d %H:%M:%S"),
-            "FC": fmt(data.nee, 3, "-6999"), "SW_IN": fmt(data.rg, 1, "-6999"),
-            "TA_F": fmt(data.tair * 9 / 5 + 32, 2, "-6999"), "VPD": fmt(data.vpd, 2, "-6999"),
-            "USTAR": fmt(data.ustar, 3, "-6999"), "TS": fmt(data.tsoil, 2, "-6999"),
+            "co2_flux": fmt(data.nee, 3, "-6999"), "sw_down": fmt(data.rg, 1, "-6999"),
+            "airtemp_degf": fmt(data.tair * 9 / 5 + 32, 2, "-6999"), "VPD": fmt(data.vpd, 2, "-6999"),
+            "u_fric": fmt(data.ustar, 3, "-6999"), "t_soil5": fmt(data.tsoil, 2, "-6999"),
         })
         units = "local,umol m-2 s-1,W m-2,degF,hPa,m s-1,degC\n"
         cut = len(body) // 2
@@ -753,12 +753,12 @@ time_format = "%Y-%m-%d %H:%M:%S"
 time_marks = "end"
 time_zone = "America/Toronto"
 missing = [-6999]
-""", """nee = "FC"
-rg = "SW_IN"
-tair = "TA_F"
+""", """nee = "co2_flux"
+rg = "sw_down"
+tair = "airtemp_degf"
 vpd = "VPD"
-ustar = "USTAR"
-tsoil = "TS"
+ustar = "u_fric"
+tsoil = "t_soil5"
 """, 'tair = "degF"\n')
     elif site.key == "F":  # UTF-8 BOM, pipe, date and time columns, Pa, flag, July year
         stamps = idx + step

@@ -562,9 +562,9 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
         frame = pd.DataFrame({
             "mid_time": mid.strftime("%Y-%m-%d %H:%M"), "NEE_gC": fmt(data.nee * factor, 5,
                                                                        "-9999"),
-            "Rg": fmt(data.rg, 1, "-9999"), "Ta": fmt(data.tair, 2, "-9999"),
+            "Rg": fmt(data.rg, 1, "-9999"), "t_air2": fmt(data.tair, 2, "-9999"),
             "VPD": fmt(data.vpd, 2, "-9999"), "ust": fmt(data.ustar, 3, "-9999"),
-            "Ts": fmt(data.tsoil, 2, "-9999")})
+            "tsoil_5": fmt(data.tsoil, 2, "-9999")})
         names = []
         for y in (2021, 2022):
             part = frame[idx.year == y]
@@ -574,8 +574,8 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
         text = toml(site, f'path = ["{names[0]}", "{names[1]}"]\ndelimiter = "\\t"\n'
                     'time_column = "mid_time"\ntime_format = "%Y-%m-%d %H:%M"\n'
                     'time_marks = "middle"\nmissing = [-9999]\n',
-                    'nee = "NEE_gC"\nrg = "Rg"\ntair = "Ta"\nvpd = "VPD"\nustar = "ust"\n'
-                    'tsoil = "Ts"\n', 'nee = "g C m-2"\n', processing)
+                    'nee = "NEE_gC"\nrg = "Rg"\ntair = "t_air2"\nvpd = "VPD"\nustar = "ust"\n'
+                    'tsoil = "tsoil_5"\n', 'nee = "g C m-2"\n', processing)
     else:  # T: whitespace, compact start stamps, mg CO2, RH fraction
         frame = pd.DataFrame({
             "stamp": idx.strftime("%Y%m%d%H%M"),

@@ -889,7 +889,7 @@ tsoil = "Soil_Temp"
         cols = {
             "date": stamps.strftime("%Y-%m-%d"), "time": stamps.strftime("%H:%M:%S"),
             "Fco2": fmt(data.nee, 3, "-7777"), "SWdn": fmt(data.rg, 1, "-7777"),
-            "Ta": fmt(data.tair, 2, "-7777"), "VPD": fmt(data.vpd, 2, "-7777"),
+            "t_air2": fmt(data.tair, 2, "-7777"), "VPD": fmt(data.vpd, 2, "-7777"),
             "ust": fmt(data.ustar, 3, "-7777"), "Ts10": fmt(data.tsoil, 2, "-7777"),
         }
         lines = ["Lhari Kharka alpine meadow 4350 m a.s.l. -- FICTIONAL test data",
@@ -907,7 +907,7 @@ time_marks = "end"
 missing = [-7777]
 """, """nee = "Fco2"
 rg = "SWdn"
-tair = "Ta"
+tair = "t_air2"
 vpd = "VPD"
 ustar = "ust"
 tsoil = "Ts10"
@@ -918,7 +918,7 @@ tsoil = "Ts10"
             part = idx.year == year
             body = pd.DataFrame({
                 "Time": stamps[part].strftime("%Y-%m-%d %H:%M"),
-                "FC": fmt(data.nee[part], 3, "-6999"), "Rs": fmt(data.rg[part], 1, "-6999"),
+                "co2_flux": fmt(data.nee[part], 3, "-6999"), "Rs": fmt(data.rg[part], 1, "-6999"),
                 "Tair": fmt(data.tair[part], 2, "-6999"), "VPD": fmt(data.vpd[part], 2, "-6999"),
                 "u_star": fmt(data.ustar[part], 3, "-6999"),
                 "Tpeat10": fmt(data.tsoil[part], 2, "-6999"),
@@ -938,7 +938,7 @@ time_marks = "end"
 time_zone = "America/St_Johns"
 missing = [-6999]
 flag_accept = [0, 1]
-""", """nee = "FC"
+""", """nee = "co2_flux"
 rg = "Rs"
 tair = "Tair"
 vpd = "VPD"
@@ -971,8 +971,8 @@ tsoil = "tsoil_c"
         body = pd.DataFrame({
             "DateTime": idx.strftime("%m/%d/%Y %I:%M %p"),
             "NEE": fmt(data.nee, 3, ""), "Rg": fmt(data.rg, 1, "-9999"),
-            "Ta": fmt(data.tair, 2, "-9999"), "VPD": fmt(data.vpd, 2, "-9999"),
-            "Ustar": fmt(data.ustar, 3, "-9999"), "Ts": fmt(data.tsoil, 2, "-9999"),
+            "t_air2": fmt(data.tair, 2, "-9999"), "VPD": fmt(data.vpd, 2, "-9999"),
+            "Ustar": fmt(data.ustar, 3, "-9999"), "tsoil_5": fmt(data.tsoil, 2, "-9999"),
             "QF": data.flag.astype(str),
         })
         body.to_csv(folder / "hinokizawa.csv", index=False)
@@ -984,10 +984,10 @@ missing = [-9999]
 flag_accept = [0, 1]
 """, """nee = "NEE"
 rg = "Rg"
-tair = "Ta"
+tair = "t_air2"
 vpd = "VPD"
 ustar = "Ustar"
-tsoil = "Ts"
+tsoil = "tsoil_5"
 nee_flag = "QF"
 """)
     elif site.key == "H":  # semicolon, date parts in five columns, PPFD, "NAN", start stamps
@@ -997,7 +997,7 @@ nee_flag = "QF"
             "Minute": idx.minute.map("{:02d}".format),
             "FCO2": fmt(data.nee, 3, "NAN"), "PAR_in": fmt(2.10 * data.rg, 1, "NAN"),
             "T_air": fmt(data.tair, 2, "-9999"), "VPD_hPa": fmt(data.vpd, 2, "-9999"),
-            "USTAR": fmt(data.ustar, 3, "NAN"), "T_peat": fmt(data.tsoil, 2, "-9999"),
+            "u_fric": fmt(data.ustar, 3, "NAN"), "T_peat": fmt(data.tsoil, 2, "-9999"),
             "WT_cm": fmt(data.wtd, 1, "-9999"), "Flag": data.flag.astype(str),
         })
         body.to_csv(folder / "chullpa_hourly.csv", index=False, sep=";")
@@ -1012,7 +1012,7 @@ flag_accept = [0, 1]
 ppfd = "PAR_in"
 tair = "T_air"
 vpd = "VPD_hPa"
-ustar = "USTAR"
+ustar = "u_fric"
 tsoil = "T_peat"
 nee_flag = "Flag"
 """)

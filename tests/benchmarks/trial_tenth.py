@@ -82,7 +82,7 @@ constant or form of this script with no source):
   yield x (1 + 0.8 (diffuse share - 0.35)) (invented form; light-use efficiency higher under
   diffuse light, Gu et al. 2002 (m)); capacity x Gaussian of air temperature x exp(-0.04
   (VPD - 10 hPa)) above 10 hPa (invented constants) x water limitation where a bucket runs.
-- respiration: heterotrophic R_h = r_h exp(b (Ts - 15) + c (Ts - 15)^2) (Tuomi et al. 2008
+- respiration: heterotrophic R_h = r_h exp(b (T_soil - 15) + c (T_soil - 15)^2) (Tuomi et al. 2008
   (m), invented b, c) x moisture theta / (theta + 0.15) x 1.15 (A, F; invented) x tide
   (0.25 while flooded, T) + Birch pulses (A: 1.2 umol m-2 s-1 x min(dry days, 40) / 20,
   decaying with 1.5 d e-folding; form after Birch 1958 (m), constants invented) + dead-wood
@@ -379,7 +379,7 @@ def simulate(site: Site, variant=frozenset()):
     ``nothin`` (N: no thinning), ``nofog`` (N: no fog gaps), ``nodiffuse`` (no diffuse-light
     enhancement), ``rect`` (curvature 0: the rectangular hyperbola), ``nosnow`` (B: the soil
     follows the air under snow too), ``nofrost`` (B: no pump failures), ``nooutage`` (no
-    multi-day outage), ``qconst`` (ln R_h linear in Ts: a constant Q10), ``onetemp``
+    multi-day outage), ``qconst`` (ln R_h linear in T_soil: a constant Q10), ``onetemp``
     (autotrophic respiration of soil temperature too: one temperature drives all of Reco),
     ``airtemp`` (heterotrophic respiration of air temperature too).
     """
@@ -668,7 +668,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing: str = "
     if site.key == "T":  # end stamps day-first, PPFD instead of Rg, VPD in kPa, "NAN"
         stamps = idx + step
         body = pd.DataFrame({
-            "DateTime": stamps.strftime("%d/%m/%Y %H:%M"), "Fc": fmt(data.nee, 3, "NAN"),
+            "DateTime": stamps.strftime("%d/%m/%Y %H:%M"), "co2_flx": fmt(data.nee, 3, "NAN"),
             "PAR_in": fmt(data.rg * 2.10, 1, "NAN"), "AirT": fmt(data.tair, 2, "NAN"),
             "VPD_kPa": fmt(data.vpd / 10, 4, "NAN"), "Ustar": fmt(data.ustar, 3, "NAN"),
             "SedT": fmt(data.tsoil, 2, "NAN"),
@@ -679,7 +679,7 @@ time_column = "DateTime"
 time_format = "%d/%m/%Y %H:%M"
 time_marks = "end"
 missing = ["NAN"]
-""", """nee = "Fc"
+""", """nee = "co2_flx"
 ppfd = "PAR_in"
 tair = "AirT"
 vpd = "VPD_kPa"
@@ -692,7 +692,7 @@ tsoil = "SedT"
             body = pd.DataFrame({
                 "Zeit": part.index.strftime("%Y-%m-%dT%H:%M"),
                 "NEE": fmt(part.nee, 3, "-9999"), "Rg": fmt(part.rg, 1, "-9999"),
-                "Ta": fmt(part.tair, 2, "-9999"), "RH": fmt(part.rh, 1, "-9999"),
+                "t_air2": fmt(part.tair, 2, "-9999"), "RH": fmt(part.rh, 1, "-9999"),
                 "ustar": fmt(part.ustar, 3, "-9999"), "Ts10": fmt(part.tsoil, 2, "-9999"),
             })
             text = body.to_csv(sep=";", index=False)
@@ -707,7 +707,7 @@ time_marks = "start"
 missing = [-9999]
 """, """nee = "NEE"
 rg = "Rg"
-tair = "Ta"
+tair = "t_air2"
 rh = "RH"
 ustar = "ustar"
 tsoil = "Ts10"
@@ -788,25 +788,25 @@ tsoil = "tsoil"
     elif site.key == "B":  # turbulent flux + storage, a flag with an accepted warning value
         turb = data.nee - data.storage
         body = pd.DataFrame({
-            "TIMESTAMP": (idx + step).strftime("%Y-%m-%d %H:%M:%S"),
-            "Fc_turb": fmt(turb, 3, "-9999"), "Sc": fmt(data.storage, 3, "-9999"),
+            "stamp_end": (idx + step).strftime("%Y-%m-%d %H:%M:%S"),
+            "co2_turbflux": fmt(turb, 3, "-9999"), "co2_stor": fmt(data.storage, 3, "-9999"),
             "qc_fc": data.flag.astype(int).astype(str),
-            "Rg": fmt(data.rg, 1, "-9999"), "Ta": fmt(data.tair, 2, "-9999"),
+            "Rg": fmt(data.rg, 1, "-9999"), "t_air2": fmt(data.tair, 2, "-9999"),
             "VPD": fmt(data.vpd, 2, "-9999"), "ustar": fmt(data.ustar, 3, "-9999"),
             "Ts5": fmt(data.tsoil, 2, "-9999"),
         })
         body.to_csv(folder / "kallioniemi.csv", index=False)
         text = toml_site(site, """path = "kallioniemi.csv"
-time_column = "TIMESTAMP"
+time_column = "stamp_end"
 time_format = "%Y-%m-%d %H:%M:%S"
 time_marks = "end"
 missing = [-9999]
 flag_accept = [0, 1]
-""", """nee = "Fc_turb"
-storage = "Sc"
+""", """nee = "co2_turbflux"
+storage = "co2_stor"
 nee_flag = "qc_fc"
 rg = "Rg"
-tair = "Ta"
+tair = "t_air2"
 vpd = "VPD"
 ustar = "ustar"
 tsoil = "Ts5"

@@ -615,16 +615,16 @@ flag_accept = [0, 1]
         body = pd.DataFrame({
             "date_time": end.strftime("%d-%m-%Y %H:%M"),
             "NEE_gC": fmt(data.nee * site.step * 60 * GC_PER_UMOL, 5, "-999.9"),
-            "Rs_kW": fmt(data.rg / 1000, 4, "-999.9"), "Ta": fmt(data.tair, 2, "-999.9"),
+            "Rs_kW": fmt(data.rg / 1000, 4, "-999.9"), "t_air2": fmt(data.tair, 2, "-999.9"),
             "VPD": fmt(data.vpd, 2, "-999.9"), "ust": fmt(data.ustar, 3, "-999.9"),
-            "Ts": fmt(data.tsoil, 2, "-999.9")})
+            "tsoil_5": fmt(data.tsoil, 2, "-999.9")})
         body.to_csv(folder / "warrgal_hourly.csv", index=False)
         text = toml(site, """path = "warrgal_hourly.csv"
 time_column = "date_time"
 time_format = "%d-%m-%Y %H:%M"
 time_marks = "end"
 missing = [-999.9]
-""", 'nee = "NEE_gC"\nrg = "Rs_kW"\ntair = "Ta"\nvpd = "VPD"\nustar = "ust"\ntsoil = "Ts"\n',
+""", 'nee = "NEE_gC"\nrg = "Rs_kW"\ntair = "t_air2"\nvpd = "VPD"\nustar = "ust"\ntsoil = "tsoil_5"\n',
             'nee = "g C m-2"\nrg = "kW m-2"\n',
             processing + ('events = ["2023-09-02"]\n' if "events" not in processing else ""))
     elif site.key == "P":  # tab, ISO with offset, PPFD, RH, no rows in the power loss
@@ -668,10 +668,10 @@ missing = ["NA"]
         utc = idx - pd.Timedelta(hours=site.utc_offset) + step
         body = pd.DataFrame({
             "TIMESTAMP_UTC": utc.strftime("%Y-%m-%d %H:%M:%S"),
-            "Fc": fmt(data.nee, 3, "-9999"), "Sc": fmt(data.storage, 3, "-9999"),
-            "Rg": fmt(data.rg, 1, "-9999"), "Ta": fmt(data.tair, 2, "-9999"),
+            "co2_flx": fmt(data.nee, 3, "-9999"), "co2_stor": fmt(data.storage, 3, "-9999"),
+            "Rg": fmt(data.rg, 1, "-9999"), "t_air2": fmt(data.tair, 2, "-9999"),
             "VPD": fmt(data.vpd / 10, 3, "-9999"), "Ustar": fmt(data.ustar, 3, "-9999"),
-            "Ts": fmt(data.tsoil, 2, "-9999")})
+            "tsoil_5": fmt(data.tsoil, 2, "-9999")})
         body.to_csv(folder / "kijani_flux.csv", index=False)
         text = toml(site, """path = "kijani_flux.csv"
 time_column = "TIMESTAMP_UTC"
@@ -679,8 +679,8 @@ time_format = "%Y-%m-%d %H:%M:%S"
 time_marks = "end"
 time_zone = "UTC"
 missing = [-9999]
-""", 'nee = "Fc"\nstorage = "Sc"\nrg = "Rg"\ntair = "Ta"\nvpd = "VPD"\nustar = "Ustar"\n'
-            'tsoil = "Ts"\n', 'vpd = "kPa"\n', processing)
+""", 'nee = "co2_flx"\nstorage = "co2_stor"\nrg = "Rg"\ntair = "t_air2"\nvpd = "VPD"\nustar = "Ustar"\n'
+            'tsoil = "tsoil_5"\n', 'vpd = "kPa"\n', processing)
     else:
         raise ValueError(site.key)
     (folder / name).write_text(text)

@@ -720,7 +720,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing="", vari
         body = pd.DataFrame({
             "TimeEnd": (idx + step).strftime("%Y-%m-%d %H:%M"),
             "Fco2": fmt(data.nee, 3, "-9999"), "SWin": fmt(data.rg, 1, "-9999"),
-            "Ta": fmt(data.tair, 2, "-9999"), "RH": fmt(data.rh, 1, "-9999"),
+            "t_air2": fmt(data.tair, 2, "-9999"), "RH": fmt(data.rh, 1, "-9999"),
             "ustar": fmt(data.ustar, 3, "-9999"), "Ts5": fmt(data.tsoil, 2, "-9999")})
         units = "local standard time,umol m-2 s-1,W m-2,degC,%,m s-1,degC"
         (folder / "brackenrigg.csv").write_text(
@@ -731,7 +731,7 @@ time_column = "TimeEnd"
 time_format = "%Y-%m-%d %H:%M"
 time_marks = "end"
 missing = [-9999]
-""", 'nee = "Fco2"\nrg = "SWin"\ntair = "Ta"\nrh = "RH"\nustar = "ustar"\ntsoil = "Ts5"\n',
+""", 'nee = "Fco2"\nrg = "SWin"\ntair = "t_air2"\nrh = "RH"\nustar = "ustar"\ntsoil = "Ts5"\n',
             processing=processing)
     elif site.key == "K":  # tab, title line, Date + Time end stamps with 24:00, mg CO2, kPa
         end = idx + step
@@ -806,12 +806,12 @@ time_marks = "start"
         second = data[data.index.year == 2022]
         for part, st, fname in ((first, step1, "holmvik_2021.csv"),
                                 (second, step, "holmvik_2022.csv")):
-            body = pd.DataFrame({"TIMESTAMP": (part.index + st).strftime("%Y-%m-%d %H:%M")})
+            body = pd.DataFrame({"stamp_end": (part.index + st).strftime("%Y-%m-%d %H:%M")})
             for c, dec in cols.items():
                 body[c.upper()] = fmt(part[c], dec, "-9999")
             body.to_csv(folder / fname, index=False)
         text = toml(site, """path = ["holmvik_2021.csv", "holmvik_2022.csv"]
-time_column = "TIMESTAMP"
+time_column = "stamp_end"
 time_format = "%Y-%m-%d %H:%M"
 time_marks = "end"
 missing = [-9999]
@@ -851,16 +851,16 @@ def write_steppe(site, data, folder, processing):
         end = frame.index + pd.Timedelta(minutes=minutes)
         return pd.DataFrame({
             "time_end": end.strftime("%Y-%m-%dT%H:%M") + utc_label,
-            "FC": fmt(frame.nee, 3, "-9999"), "SW_IN": fmt(frame.rg, 1, "-9999"),
+            "co2_flux": fmt(frame.nee, 3, "-9999"), "sw_down": fmt(frame.rg, 1, "-9999"),
             "TA_K": fmt(frame.tair + 273.15, 2, "-9999"), "VPD_PA": fmt(frame.vpd * 100, 0, "-9999"),
-            "USTAR": fmt(frame.ustar, 3, "-9999"), "TS_K": fmt(frame.tsoil + 273.15, 2, "-9999")})
+            "u_fric": fmt(frame.ustar, 3, "-9999"), "TS_K": fmt(frame.tsoil + 273.15, 2, "-9999")})
 
     inp = """time_column = "time_end"
 time_format = "%Y-%m-%dT%H:%M%z"
 time_marks = "end"
 missing = [-9999]
 """
-    cols = ('nee = "FC"\nrg = "SW_IN"\ntair = "TA_K"\nvpd = "VPD_PA"\nustar = "USTAR"\n'
+    cols = ('nee = "co2_flux"\nrg = "sw_down"\ntair = "TA_K"\nvpd = "VPD_PA"\nustar = "u_fric"\n'
             'tsoil = "TS_K"\n')
     units = 'tair = "K"\ntsoil = "K"\nvpd = "Pa"\n'
     body_of(raw, 10).to_csv(folder / "overo_10min.csv", index=False)
