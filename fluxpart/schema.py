@@ -179,9 +179,9 @@ UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
     "nee_uncertainty_random_percentile_97_5": (CARBON, "97.5th percentile of the Monte Carlo "
                                                "random error of the annual NEE sum (measured "
                                                "records), grams of carbon"),
-    "nee_uncertainty_random_analytic": (CARBON, "random error of the annual NEE sum over the "
-                                        "measured records from their variances (independent "
-                                        "errors), grams of carbon"),
+    "nee_uncertainty_random_analytic": (CARBON, "1 sigma: random error of the annual NEE sum "
+                                        "over the measured records from their variances "
+                                        "(independent errors), grams of carbon"),
     "nee_uncertainty_gapfill": (CARBON, "1 sigma of the NEE sum (carbon) from gap filling, "
                                 "scored on artificial gaps of the site's own gap lengths: "
                                 "independent and within-gap correlated parts (Richardson & "
