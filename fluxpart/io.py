@@ -1084,6 +1084,13 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             [*mapping.values(), *flag_columns, *time_columns])
         if left_out:
             warnings.append(f"storage: {left_out}")
+    if "nee" in mapping:
+        # a flux column labelled gap-filled (mistakes40)
+        from .fill_labels import filled_nee_label
+
+        filled = filled_nee_label(mapping["nee"])
+        if filled:
+            warnings.append(f"nee: {filled}")
     if "ppfd" in converted:
         ppfd = converted.pop("ppfd")
         if "rg" not in converted:
