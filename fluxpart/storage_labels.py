@@ -120,7 +120,9 @@ def unmapped_storage_column(nee_column, file_columns, taken) -> str | None:
     str or None
         The warning text, or None where the nee column is labelled NEE (a word of
         :data:`NEE_WORDS` and none of :data:`TURBULENT_WORDS`: it holds the storage term
-        by definition) or no unused column's name holds a word of
+        by definition) or names the storage itself ("co2_flux_incl_storage"; a word of
+        :data:`STORAGE_WORDS`, none of :data:`TURBULENT_WORDS`), or no unused column's
+        name holds a word of
         :data:`STORAGE_WORDS` and one of :data:`CO2_WORDS` and none of
         :data:`FLUX_WORDS`.
 
@@ -142,8 +144,8 @@ def unmapped_storage_column(nee_column, file_columns, taken) -> str | None:
     storage) (m).
     """
     words = label_words(nee_column)
-    if words & NEE_WORDS and not words & TURBULENT_WORDS:
-        return None
+    if (words & NEE_WORDS or words & STORAGE_WORDS) and not words & TURBULENT_WORDS:
+        return None     # labelled NEE, or a flux whose name says it holds the storage
     used = {str(column) for column in taken}
     found = []
     for column in file_columns:

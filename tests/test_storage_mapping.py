@@ -189,7 +189,9 @@ def test_nee_mapped_as_the_storage_column_is_refused(tmp_path):
     ("NEE_turb", ["NEE_turb", "co2_store"], True),          # ... unless it says turbulent
     ("co2_flux", ["co2_flux", "H_storage", "LE_store"], False),   # heat, water: not CO2
     ("co2_flux", ["co2_flux", "co2_flux_storage_corr"], False),   # a flux, not the term
-    ("co2_flux", ["co2_flux", "co2_flux"], False)])
+    ("co2_flux", ["co2_flux", "co2_flux"], False),
+    ("co2_flux_incl_storage", ["co2_flux_incl_storage", "co2_store"], False),
+    ("co2_flux_no_storage", ["co2_flux_no_storage", "co2_store"], True)])
 def test_a_co2_storage_column_left_unmapped_beside_a_turbulent_flux_is_named(flux, columns,
                                                                             named):
     """NEE = turbulent flux + storage (Finnigan 2006): an unused column whose name says
