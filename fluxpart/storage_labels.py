@@ -45,6 +45,11 @@ CO2_WORDS = frozenset({"co", "carbon"})
 #: "NEE_incl_storage"): such a column is not named (our choice).
 FLUX_WORDS = frozenset({"flux", "flx", "fluxes", "nee", "nep", "incl", "including", "with",
                         "corr", "corrected", "plus", "total"})
+#: Words that say a column is a statistic or a flag of the storage term, not its value
+#: ("co2_store_flag", "co2_storage_sd"): not named either (our choice).
+STATISTIC_WORDS = frozenset({"flag", "flags", "qc", "quality", "sd", "std", "stdev", "sigma",
+                             "var", "min", "max", "n", "count", "unc", "uncertainty", "err",
+                             "error"})
 
 
 def label_words(name) -> set[str]:
@@ -124,7 +129,7 @@ def unmapped_storage_column(nee_column, file_columns, taken) -> str | None:
         :data:`STORAGE_WORDS`, none of :data:`TURBULENT_WORDS`), or no unused column's
         name holds a word of
         :data:`STORAGE_WORDS` and one of :data:`CO2_WORDS` and none of
-        :data:`FLUX_WORDS`.
+        :data:`FLUX_WORDS` or :data:`STATISTIC_WORDS`.
 
     Notes
     -----
@@ -152,7 +157,8 @@ def unmapped_storage_column(nee_column, file_columns, taken) -> str | None:
         if str(column) in used or str(column) in found:
             continue
         words = label_words(column)
-        if words & STORAGE_WORDS and words & CO2_WORDS and not words & FLUX_WORDS:
+        if (words & STORAGE_WORDS and words & CO2_WORDS
+                and not words & (FLUX_WORDS | STATISTIC_WORDS)):
             found.append(str(column))
     if not found:
         return None

@@ -190,6 +190,7 @@ def test_nee_mapped_as_the_storage_column_is_refused(tmp_path):
     ("co2_flux", ["co2_flux", "H_storage", "LE_store"], False),   # heat, water: not CO2
     ("co2_flux", ["co2_flux", "co2_flux_storage_corr"], False),   # a flux, not the term
     ("co2_flux", ["co2_flux", "co2_flux"], False),
+    ("co2_flux", ["co2_flux", "co2_store_flag", "co2_storage_sd"], False),   # statistics
     ("co2_flux_incl_storage", ["co2_flux_incl_storage", "co2_store"], False),
     ("co2_flux_no_storage", ["co2_flux_no_storage", "co2_store"], True)])
 def test_a_co2_storage_column_left_unmapped_beside_a_turbulent_flux_is_named(flux, columns,
