@@ -1034,6 +1034,12 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                 "missing codes, or remove the storage mapping to use the turbulent flux alone")
         converted["nee"] = turbulent + storage
         source_of["nee"] = f"{mapping['nee']} + {mapping['storage']} (storage)"
+        # the storage read in another unit than the flux (mistakes40)
+        from .storage_labels import storage_unit_apart
+
+        apart = storage_unit_apart(units.get("nee"), units.get("storage"))
+        if apart:
+            warnings.append(f"storage: {apart}")
         from .column_faults import (  # only where storage is mapped
             FLUX_COPY_WORDS,
             storage_in_turbulent_flux,
@@ -1069,6 +1075,22 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             warnings.append(f"storage: {storage_missing} record(s) have a turbulent flux in "
                             f"{mapping['nee']!r} but no storage value in {mapping['storage']!r};"
                             " their NEE is missing and will be gap-filled")
+    elif "nee" in mapping:
+        # a storage column of the file left out beside a turbulent flux (mistakes40)
+        from .storage_labels import unmapped_storage_column
+
+        left_out = unmapped_storage_column(
+            mapping["nee"], [column for part in parts for column in part["file_columns"]],
+            [*mapping.values(), *flag_columns, *time_columns])
+        if left_out:
+            warnings.append(f"storage: {left_out}")
+    if "nee" in mapping:
+        # a flux column labelled gap-filled (mistakes40)
+        from .fill_labels import filled_nee_label
+
+        filled = filled_nee_label(mapping["nee"])
+        if filled:
+            warnings.append(f"nee: {filled}")
     if "ppfd" in converted:
         ppfd = converted.pop("ppfd")
         if "rg" not in converted:

@@ -1,4 +1,5 @@
-"""A column labelled NEE mapped beside a storage column (round mistakes38).
+"""A column labelled NEE mapped beside a storage column (round mistakes38); a storage
+column of the file left unmapped beside a turbulent flux (round mistakes40).
 
 Net ecosystem exchange is by definition the turbulent flux at the sensor plus the change
 of the CO2 stored below it (Finnigan 2006; Aubinet et al. 2012, ch. 1 (m)): a column a
@@ -20,7 +21,10 @@ from __future__ import annotations
 
 import re
 
-__all__ = ["NEE_WORDS", "TURBULENT_WORDS", "label_words", "nee_label_beside_storage"]
+from .variables import same_unit_key, units_for
+
+__all__ = ["NEE_WORDS", "STORAGE_WORDS", "TURBULENT_WORDS", "label_words",
+           "nee_label_beside_storage", "storage_unit_apart", "unmapped_storage_column"]
 
 #: Words of a column name that label net ecosystem exchange or production, both of which
 #: hold the storage term by definition (the trade's terms).
@@ -30,6 +34,22 @@ NEE_WORDS = frozenset({"nee", "nep"})
 #: "NEE_no_storage" state which part they hold, "nee_uncorrected" may).
 TURBULENT_WORDS = frozenset({"turb", "turbulent", "eddy", "covariance", "cov", "no", "without",
                              "wo", "excl", "excluding", "nostorage", "uncorrected"})
+
+#: Words of a column name that say it holds a storage term (our choice: the English word
+#: and its abbreviations in logger programs; "stor" as in "co2_stor").
+STORAGE_WORDS = frozenset({"storage", "store", "stored", "stor"})
+#: Words that say the gas is CO2 ("co2" reads as the word "co": digits are no letters), so
+#: that a heat or water vapour storage column is not taken for CO2's (our choice).
+CO2_WORDS = frozenset({"co", "carbon"})
+#: Words that say a column is a flux, not the storage term alone ("co2_flux_storage_corr",
+#: "NEE_incl_storage"): such a column is not named (our choice).
+FLUX_WORDS = frozenset({"flux", "flx", "fluxes", "nee", "nep", "incl", "including", "with",
+                        "corr", "corrected", "plus", "total"})
+#: Words that say a column is a statistic or a flag of the storage term, not its value
+#: ("co2_store_flag", "co2_storage_sd"): not named either (our choice).
+STATISTIC_WORDS = frozenset({"flag", "flags", "qc", "quality", "sd", "std", "stdev", "sigma",
+                             "var", "min", "max", "n", "count", "unc", "uncertainty", "err",
+                             "error"})
 
 
 def label_words(name) -> set[str]:
@@ -86,3 +106,122 @@ def nee_label_beside_storage(nee_column, storage_column) -> str | None:
             "counted twice (by night and again in the morning: nighttime GPP and Reco "
             "some +350 g C m-2 a year on the maize example so written), so remove the "
             "storage mapping; if it is the turbulent flux alone, keep it")
+
+
+def unmapped_storage_column(nee_column, file_columns, taken) -> str | None:
+    """A message where the file holds a CO2 storage column that no mapping reads.
+
+    Parameters
+    ----------
+    nee_column : str
+        The file column mapped as ``nee`` (storage not mapped).
+    file_columns : iterable of str
+        Every column of the input file(s).
+    taken : iterable of str
+        The file columns the reader uses (mapped, flags, time).
+
+    Returns
+    -------
+    str or None
+        The warning text, or None where the nee column is labelled NEE (a word of
+        :data:`NEE_WORDS` and none of :data:`TURBULENT_WORDS`: it holds the storage term
+        by definition) or names the storage itself ("co2_flux_incl_storage"; a word of
+        :data:`STORAGE_WORDS`, none of :data:`TURBULENT_WORDS`), or no unused column's
+        name holds a word of
+        :data:`STORAGE_WORDS` and one of :data:`CO2_WORDS` and none of
+        :data:`FLUX_WORDS` or :data:`STATISTIC_WORDS`.
+
+    Notes
+    -----
+    NEE is the turbulent flux at the sensor plus the change of the CO2 stored below it
+    (Finnigan 2006; Aubinet et al. 2012, ch. 1 (m)). The storage term sums to about 0
+    over whole days, but not over the night and morning records the partitionings read:
+    left out, the CO2 building up on calm nights is missing from the night fluxes and the
+    morning flush from the day's. Only a warning: a flux column of a neutral name may
+    hold the storage term already, and a user may leave a negligible store out on purpose.
+
+    References
+    ----------
+    Finnigan, J. (2006). The storage term in eddy flux calculations. Agricultural and
+    Forest Meteorology 136, 108-113.
+    Aubinet, M., Vesala, T. & Papale, D. (eds.) (2012). Eddy Covariance: A Practical
+    Guide to Measurement and Data Analysis. Springer, ch. 1 (NEE = turbulent flux +
+    storage) (m).
+    """
+    words = label_words(nee_column)
+    if (words & NEE_WORDS or words & STORAGE_WORDS) and not words & TURBULENT_WORDS:
+        return None     # labelled NEE, or a flux whose name says it holds the storage
+    used = {str(column) for column in taken}
+    found = []
+    for column in file_columns:
+        if str(column) in used or str(column) in found:
+            continue
+        words = label_words(column)
+        if (words & STORAGE_WORDS and words & CO2_WORDS
+                and not words & (FLUX_WORDS | STATISTIC_WORDS)):
+            found.append(str(column))
+    if not found:
+        return None
+    listed = ", ".join(repr(column) for column in found)
+    return (f"the file holds a CO2 storage column ({listed}) that no mapping reads, and the "
+            f"column mapped as nee ({nee_column!r}) is not labelled NEE: NEE is the "
+            "turbulent flux plus the storage term by definition, and without it the CO2 "
+            "stored below the sensor on calm nights and vented in the morning is missing "
+            "from the records both partitionings read (nighttime Reco -322 g C m-2 a year "
+            f"on the maize example so read): map it, [input.columns] storage = "
+            f"{found[0]!r}, if {nee_column!r} is the turbulent flux alone; if it already "
+            "holds the storage term, leave the storage column out")
+
+
+def storage_unit_apart(nee_unit, storage_unit) -> str | None:
+    """A message where storage is read in another unit than the flux it is added to.
+
+    Parameters
+    ----------
+    nee_unit, storage_unit : str or None
+        The ``[input.units]`` of ``nee`` and ``storage``; None where not declared (the
+        canonical µmol m-2 s-1).
+
+    Returns
+    -------
+    str or None
+        The warning text naming both readings and the factor between them, or None
+        where the two read as one unit (the same conversion).
+
+    Notes
+    -----
+    The storage term is computed beside the turbulent flux from the same analyser or a
+    profile of it and written by the same program, in the flux's unit (common practice
+    (m)); two units in one file are a setting declared for one column and forgotten for
+    the other. Read 22.7 times too small (mg CO2 for µmol), the store is as good as left
+    out; 22.7 times too large, it swamps the flux. A warning: a profile system's own
+    file may write another unit, and then the settings are right.
+
+    References
+    ----------
+    Finnigan, J. (2006). The storage term in eddy flux calculations. Agricultural and
+    Forest Meteorology 136, 108-113.
+    """
+    canonical = units_for("storage")[0]
+    nee_key = same_unit_key("nee", nee_unit if nee_unit is not None else canonical)
+    storage_key = same_unit_key("storage",
+                                storage_unit if storage_unit is not None else canonical)
+    if (nee_key == storage_key or nee_key[0] != "unit" or storage_key[0] != "unit"
+            or nee_key[2] or storage_key[2]):   # an amount per interval: no one factor
+        return None
+    factor = nee_key[1][0] / storage_key[1][0]
+    storage_text = (f"[input.units] storage = {storage_unit!r}" if storage_unit is not None
+                    else f"{canonical!r} (no [input.units] storage: its default)")
+    nee_text = (f"[input.units] nee = {nee_unit!r}" if nee_unit is not None
+                else f"{canonical!r} (no [input.units] nee: its default)")
+    target = nee_unit if nee_unit is not None else canonical
+    fix = (f"set [input.units] storage = {target!r}"
+           if same_unit_key("storage", target)[0] == "unit"
+           else "declare the unit the storage column is written in")
+    size = (f"{factor:.3g} times too small (a store left out: nighttime Reco -311 g C "
+            "m-2 a year on the maize example so read)" if factor > 1
+            else f"{1 / factor:.3g} times too large (a store swamping the flux)")
+    return (f"the storage column is read as {storage_text} but the flux it is added to as "
+            f"{nee_text}: a flux and its storage term are written by one program in one "
+            f"unit, so if the storage column is in the flux's unit, its term is read "
+            f"{size}; {fix} if so")

@@ -1,6 +1,7 @@
 """Storage mapping mistakes (round mistakes38): a column labelled NEE mapped beside a
 storage column (`fluxpart.storage_labels`), a flux mapped as the storage column
-(`fluxpart.column_faults.flux_as_storage`).
+(`fluxpart.column_faults.flux_as_storage`); a storage column left unmapped, or read in
+another unit than the flux (round mistakes40).
 
 Source of every check: NEE is the turbulent flux plus the change of the CO2 stored below
 the sensor (Finnigan 2006, Agric. For. Meteorol. 136:108-113; a fact of the trade), so a
@@ -22,7 +23,12 @@ from fluxpart.column_faults import (
 )
 from fluxpart.errors import ImplausibleValueError
 from fluxpart.io import read_input, read_site_config
-from fluxpart.storage_labels import label_words, nee_label_beside_storage
+from fluxpart.storage_labels import (
+    label_words,
+    nee_label_beside_storage,
+    storage_unit_apart,
+    unmapped_storage_column,
+)
 
 EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
 
@@ -170,3 +176,69 @@ def test_nee_mapped_as_the_storage_column_is_refused(tmp_path):
         read_input(read_site_config(_maize_copy(tmp_path, flux_as_storage=True)))
     assert "remove the storage mapping" in str(caught.value)
     assert "opposite sign" not in str(caught.value)
+
+
+# ------------------------------------- a storage column left out, or read in another unit
+
+
+@pytest.mark.parametrize("flux, columns, named", [
+    ("co2_turb", ["co2_turb", "co2_store"], True),         # the maize example's layout
+    ("co2_flux", ["co2_flux", "CO2 storage [umol m-2 s-1]"], True),
+    ("co2_flux", ["co2_flux", "carbon_stor"], True),
+    ("NEE", ["NEE", "co2_store"], False),                   # NEE holds storage by definition
+    ("NEE_turb", ["NEE_turb", "co2_store"], True),          # ... unless it says turbulent
+    ("co2_flux", ["co2_flux", "H_storage", "LE_store"], False),   # heat, water: not CO2
+    ("co2_flux", ["co2_flux", "co2_flux_storage_corr"], False),   # a flux, not the term
+    ("co2_flux", ["co2_flux", "co2_flux"], False),
+    ("co2_flux", ["co2_flux", "co2_store_flag", "co2_storage_sd"], False),   # statistics
+    ("co2_flux_incl_storage", ["co2_flux_incl_storage", "co2_store"], False),
+    ("co2_flux_no_storage", ["co2_flux_no_storage", "co2_store"], True)])
+def test_a_co2_storage_column_left_unmapped_beside_a_turbulent_flux_is_named(flux, columns,
+                                                                            named):
+    """NEE = turbulent flux + storage (Finnigan 2006): an unused column whose name says
+    CO2 storage, beside a flux not labelled NEE, is named with the mapping to add."""
+    text = unmapped_storage_column(flux, columns, [flux])
+    assert (text is not None) is named
+    if named:
+        assert f"[input.columns] storage = {columns[1]!r}" in text
+
+
+def test_a_storage_column_read_in_another_unit_than_its_flux_is_named():
+    """Flux and storage term written by one program in one unit (common practice (m)):
+    mg CO2 declared for nee only reads the store 1000/44.009 = 22.7 times too small
+    (CO2 molar mass 44.009 g mol-1, IUPAC); the same unit, spelled either way, is quiet."""
+    small = storage_unit_apart("mg CO2 m-2 s-1", None)
+    assert "22.7 times too small" in small
+    assert "set [input.units] storage = 'mg CO2 m-2 s-1'" in small
+    assert "22.7 times too large" in storage_unit_apart(None, "mg CO2 m-2 s-1")
+    assert storage_unit_apart("mg CO2 m-2 s-1", "mg CO2 m-2 s-1") is None
+    assert storage_unit_apart("umol m-2 s-1", None) is None
+    assert storage_unit_apart(None, None) is None
+
+
+def _storage_warnings(config):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        _, report = read_input(read_site_config(config))
+    return [text for text in report.warnings if text.startswith("storage:")]
+
+
+def test_the_maize_example_read_without_its_storage_or_with_one_unit_is_named(tmp_path):
+    """The maize example (invented site) with its storage mapping removed: nighttime GPP
+    -320.0, Reco -322.5, daytime GPP -218.2 g C m-2, silent before round mistakes40;
+    written in mg CO2 m-2 s-1 with only nee's unit declared (the store read 22.7 times
+    too small): Reco -311.0, silent; both now named (the shipped example gives no storage
+    warning: `test_nee_written_with_its_storage_and_labelled_nee_is_named`'s reads and
+    the round's probe)."""
+    config = (EXAMPLES / "quillmoor_maize_logger.toml").read_text()
+    shutil.copytree(EXAMPLES / "quillmoor_maize_logger", tmp_path / "quillmoor_maize_logger")
+    left_out = tmp_path / "left_out.toml"
+    left_out.write_text(config.replace('storage = "co2_store"', ""))
+    named = _storage_warnings(left_out)
+    assert len(named) == 1 and "CO2 storage column ('co2_store')" in named[0]
+    one_unit = tmp_path / "one_unit.toml"
+    one_unit.write_text(config.replace("[processing]",
+                                       '[input.units]\nnee = "umol/m2/s"\n'
+                                       'storage = "mg CO2 m-2 s-1"\n\n[processing]'))
+    named = [text for text in _storage_warnings(one_unit) if "in one unit" in text]
+    assert len(named) == 1 and "22.7 times too large" in named[0]
