@@ -648,7 +648,7 @@ tsoil = "t_soil_5cm"
         body = pd.DataFrame({
             "Datum": idx.strftime("%d.%m.%Y %H:%M"),
             "co2_turbflux": fmt(data.nee * MG_CO2_PER_UMOL, 5, "-9999"),
-            "Sc_profile": fmt(data.storage * MG_CO2_PER_UMOL, 5, "-9999"),
+            "co2_store_prof": fmt(data.storage * MG_CO2_PER_UMOL, 5, "-9999"),
             "Globalstr": fmt(data.rg, 1, "-9999"), "Tluft": fmt(data.tair, 2, "-9999"),
             "rF": fmt(data.rh, 1, "-9999"), "ustern": fmt(data.ustar, 3, "-9999"),
             "Tboden": fmt(data.tsoil, 2, "-9999")})
@@ -665,7 +665,7 @@ time_format = "%d.%m.%Y %H:%M"
 time_marks = "start"
 missing = [-9999]
 """, """nee = "co2_turbflux"
-storage = "Sc_profile"
+storage = "co2_store_prof"
 rg = "Globalstr"
 tair = "Tluft"
 rh = "rF"

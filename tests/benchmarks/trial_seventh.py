@@ -664,7 +664,7 @@ tsoil = "Ts10"
         hhmm = np.where(hhmm == 0, 2400, hhmm)
         cols = {"Year": day.year.astype(str), "DOY": day.day_of_year.astype(str),
                 "HHMM": hhmm.astype(str),
-                "Fc_mg": fmt(data.nee * 44.0095e-3, 5, "-999.9"),
+                "co2_flux_mg": fmt(data.nee * 44.0095e-3, 5, "-999.9"),
                 "Rs_in": fmt(data.rg, 1, "-999.9"), "Tair": fmt(data.tair, 2, "-999.9"),
                 "VPD": fmt(data.vpd, 2, "-999.9"), "Ustar": fmt(data.ustar, 3, "-999.9"),
                 "Tsoil5": fmt(data.tsoil, 2, "-999.9")}
@@ -677,7 +677,7 @@ time_column = ["Year", "DOY", "HHMM"]
 time_format = "%Y %j %H%M"
 time_marks = "end"
 missing = [-999.9]
-""", """nee = "Fc_mg"
+""", """nee = "co2_flux_mg"
 rg = "Rs_in"
 tair = "Tair"
 vpd = "VPD"

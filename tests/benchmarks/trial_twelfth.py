@@ -740,7 +740,7 @@ missing = [-9999]
                         (end - pd.Timedelta(days=1)).strftime("%d/%m/%Y"),
                         end.strftime("%d/%m/%Y"))
         body = pd.DataFrame({
-            "Date": date, "Time": hhmm, "Fc_mg": fmt(data.nee * MG_CO2_PER_UMOL, 5, "NA"),
+            "Date": date, "Time": hhmm, "co2_flux_mg": fmt(data.nee * MG_CO2_PER_UMOL, 5, "NA"),
             "Rs": fmt(data.rg, 1, "NA"), "Tair": fmt(data.tair, 2, "NA"),
             "VPD_kPa": fmt(data.vpd / 10, 3, "NA"), "Ustar": fmt(data.ustar, 3, "NA"),
             "Tsoil": fmt(data.tsoil, 2, "NA")})
@@ -754,7 +754,7 @@ time_column = ["Date", "Time"]
 time_format = "%d/%m/%Y %H:%M"
 time_marks = "end"
 missing = ["NA"]
-""", 'nee = "Fc_mg"\nrg = "Rs"\ntair = "Tair"\nvpd = "VPD_kPa"\nustar = "Ustar"\n'
+""", 'nee = "co2_flux_mg"\nrg = "Rs"\ntair = "Tair"\nvpd = "VPD_kPa"\nustar = "Ustar"\n'
             'tsoil = "Tsoil"\n', 'nee = "mg CO2 m-2 s-1"\nvpd = "kPa"\n', processing)
     elif site.key == "A":  # semicolons, decimal commas, title, start stamps, PPFD, RH, ""
         body = pd.DataFrame({
