@@ -94,7 +94,6 @@ constant or form of this script with no source):
 from __future__ import annotations
 
 import sys
-import time
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -105,17 +104,12 @@ from scipy.signal import lfilter
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
     FLUXES,
-    budget_years,
-    check_and_run,
     chosen_variant,
-    finish,
-    flux_scores,
     fmt,
     misses,
-    night_day_errors,
     print_flux_table,
-    processing_text,
-    run_warnings,
+    run_sites,
+    score_budget_years,
     site_toml,
     trial_parser,
 )
@@ -310,7 +304,7 @@ def beech_leaf(idx, met, per_day):
         forcing = np.cumsum(np.where(this, np.maximum(tm - 5, 0), 0))
         hit = np.flatnonzero(this & (forcing >= need))
         d0 = int(hit[0]) if hit.size else int(np.flatnonzero(this)[100])
-        out_days[y] = dates[d0].day_of_year
+        out_days[int(y)] = int(dates[d0].day_of_year)
         doy = dates.day_of_year.to_numpy()
         grow = ramp(doy, out_days[y], out_days[y] + 18) * (1 - ramp(doy, 285, 310))
         leaf = np.where(dates.year == y, grow, leaf)
@@ -600,36 +594,28 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing="", vari
 
 
 # ----------------------------------------------------------------------------- scoring
+def fill_parts(part, series, row):
+    """The NEE error [g C m-2] of the filled records by night, by day, in condensation
+    gaps and in outages of every sensor; the share of records without measured NEE."""
+    factor = GC_PER_UMOL * (part.index[1] - part.index[0]).total_seconds()
+    night = part.night.to_numpy().astype(bool)
+    kept = series["nee_fill_method"].to_numpy() == "measured"
+    err = series["nee_filled"].to_numpy() - part.nee.to_numpy()
+    out_rec = part.outage.to_numpy().astype(bool)
+    cond = part.condensed.to_numpy().astype(bool)
+    row.update({
+        "gap_share": float(np.mean(~kept)),
+        "err_fill_night": factor * np.nansum(err[~kept & night & ~out_rec]),
+        "err_fill_day": factor * np.nansum(err[~kept & ~night & ~out_rec]),
+        "err_fill_condensed": factor * np.nansum(err[~kept & cond]),
+        "err_fill_outage": factor * np.nansum(err[~kept & out_rec]),
+        "unfilled": int(np.isnan(err).sum())})
+
+
 def score(site: Site, truth: pd.DataFrame, out: Path, check):
     """Score every complete budget year of ``annual.parquet`` against the truth."""
-    factor = site.step * 60 * GC_PER_UMOL
-    rows = []
-    for a, part, sub, row in budget_years(out, truth, site.key, check):
-        if sub is None:
-            rows.append(row)
-            continue
-        row.update(flux_scores(a, part, factor))
-        night = part.night.to_numpy().astype(bool)
-        found = float(np.nanmedian(sub["ustar_threshold"].to_numpy()[night]))
-        planted = float(np.median(part.thr.to_numpy()[night]))
-        kept = sub["nee_fill_method"].to_numpy() == "measured"
-        est, true = sub["nee_filled"].to_numpy(), part.nee.to_numpy()
-        out_rec = part.outage.to_numpy().astype(bool)
-        cond = part.condensed.to_numpy().astype(bool)
-        row.update({
-            "ustar_found": found, "ustar_planted": planted,
-            "ustar_rel": 100 * (found - planted) / planted,
-            "gap_share": float(np.mean(~kept)),
-            "err_kept": factor * np.nansum((est - true)[kept]),
-            "err_kept_loss": factor * np.nansum(((part.share.to_numpy() - 1) * true)[kept]),
-            "err_fill_night": factor * np.nansum((est - true)[~kept & night & ~out_rec]),
-            "err_fill_day": factor * np.nansum((est - true)[~kept & ~night & ~out_rec]),
-            "err_fill_condensed": factor * np.nansum((est - true)[~kept & cond]),
-            "err_fill_outage": factor * np.nansum((est - true)[~kept & out_rec]),
-            "unfilled": int(np.isnan(est).sum())})
-        row.update(night_day_errors(sub, part, night, factor))
-        rows.append(row)
-    return rows
+    return score_budget_years(out, truth, site.key, check, site.step * 60 * GC_PER_UMOL,
+                              fill_parts)
 
 
 def print_row(row):
@@ -655,26 +641,11 @@ def main(argv=None):
     parser = trial_parser(__doc__.splitlines()[0], "/tmp/fluxpart-trial19", VARIANTS)
     options = parser.parse_args(argv)
     variant = chosen_variant(parser, options, VARIANTS)
-    options.out.mkdir(parents=True, exist_ok=True)
-    rows = []
-    t0 = time.perf_counter()
-    for key in (options.runs or ",".join(SITES)).split(","):
-        site = SITES[key]
-        data, truth = simulate(site, variant, options.seed_offset)
-        folder = options.out / f"site_{key}"
-        toml_name = write_site(site, data, folder, processing_text(options, truth), variant)
-        print(f"\n   {key} planted: {truth.attrs['note']}")
-        check, run = check_and_run(toml_name, folder, "out", f"{key} {site.name}")
-        if run is None:
-            continue
-        warns = run_warnings(run, time.perf_counter() - t0)
-        for row in score(site, truth, folder / "out", check):
-            row["warnings"] = warns
-            print_row(row)
-            rows.append(row)
-    code = finish(rows, options.out)
-    print(f"({time.perf_counter() - t0:.0f} s)")
-    return code
+
+    def write(site, data, folder, processing):
+        return write_site(site, data, folder, processing, variant)
+
+    return run_sites(options, SITES, simulate, write, score, print_row, variant)
 
 
 if __name__ == "__main__":
