@@ -1,9 +1,11 @@
 """Scoring shared by the independent known-truth trials (``trial_third.py`` to
-``trial_eleventh.py``).
+``trial_nineteenth.py``).
 
 Only the scoring is shared (and, since ``trial_eighteenth.py``, the command line and the
-loop over a run's budget years): each trial keeps its own weather, flux physics and file
-layouts, so that the trials stay independent of each other and of ``fluxpart.scenarios``.
+loop over a run's budget years; since ``trial_nineteenth.py`` the loop over the sites,
+``run_sites``, and the scoring of a run's budget years, ``score_budget_years``): each trial
+keeps its own weather, flux physics and file layouts, so that the trials stay independent
+of each other and of ``fluxpart.scenarios``.
 
 The targets are those of issue 11: a 95 % interval that holds the truth, |annual NEE error|
 <= 15 g C m-2, nighttime GPP and Reco within 5 %, daytime within 8 %, the u* threshold within
