@@ -13,7 +13,8 @@ earlier trials nor the project's generators did:
      year and was then reprogrammed to 30 minutes (one file, end stamps, undeclared): the
      product reads the hourly half of the year as 30-minute records with every other one
      missing (it warns, and advises averaging the whole record to 60 minutes: variant
-     ``averaged`` writes the file so); the truth is on the 30-minute grid throughout;
+     ``averaged`` writes the file so); the truth is on the 30-minute grid throughout; its
+     sward browns in drought and regrows over about ten days (invented time constant);
 - Q  a southern eucalypt woodland at 37.9 deg S with budget years from July whose first
      budget year holds 29 February 2024 (NEE written in mg CO2 m-2 s-1), and a closed-path
      analyser whose intake tube condenses on cold humid nights: NEE is lost from the record
