@@ -7,7 +7,7 @@ import pandas as pd
 import pytest
 
 sys.path.insert(0, str(Path(__file__).resolve().parent / "benchmarks"))
-from trial_scoring import FLUXES, TRUTH_OF, flux_scores  # noqa: E402
+from trial_scoring import FLUXES, TRUTH_OF, flux_scores, record_scores  # noqa: E402
 
 GC_PER_UMOL = 12.011e-6  # g C per umol (standard atomic weight of carbon (m))
 
@@ -51,3 +51,23 @@ def test_flux_scores_of_a_zero_truth_and_a_truth_with_holes():
         flux_scores(_annual(0.5, -1.0, 1.0), _truth([1.0, np.nan, 2.0]), 1.0)
     with pytest.raises(ValueError, match="0 records"):
         flux_scores(_annual(0.5, -1.0, 1.0), _truth([]), 1.0)
+
+
+def test_record_scores_follow_their_definitions():
+    """u* found = the median of the run's threshold over the night records, planted = the
+    median of the truth's over them, relative error 100 (found − planted) / planted; the
+    kept records' NEE error is the sum of filled − true over the measured records only,
+    and the u* loss left in them the sum of (share − 1) × true over them, × g C per record."""
+    truth = pd.DataFrame({"night": [True, True, True, False],
+                          "thr": [0.2, 0.2, 0.3, 0.9],
+                          "share": [0.5, 1.0, 1.0, 1.0],
+                          "nee": [2.0, 3.0, 4.0, -5.0]})
+    series = pd.DataFrame({"ustar_threshold": [0.25, np.nan, 0.25, 0.01],
+                           "nee_fill_method": ["measured", "similar_drivers", "measured",
+                                               "measured"],
+                           "nee_filled": [1.0, 9.0, 4.5, -4.0]})
+    row = record_scores(series, truth, 2.0)
+    assert row["ustar_found"] == pytest.approx(0.25) and row["ustar_planted"] == pytest.approx(0.2)
+    assert row["ustar_rel"] == pytest.approx(25.0)
+    assert row["err_kept"] == pytest.approx(2.0 * ((1.0 - 2.0) + (4.5 - 4.0) + (-4.0 + 5.0)))
+    assert row["err_kept_loss"] == pytest.approx(2.0 * (0.5 - 1) * 2.0)

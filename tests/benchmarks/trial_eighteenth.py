@@ -101,7 +101,6 @@ constant or form of this script with no source):
 from __future__ import annotations
 
 import sys
-import time
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -113,16 +112,13 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
     FLUXES,
     budget_years,
-    check_and_run,
     chosen_variant,
-    finish,
     flux_scores,
     fmt,
     misses,
     night_day_errors,
     print_flux_table,
-    processing_text,
-    run_warnings,
+    run_sites,
     site_toml,
     trial_parser,
 )
@@ -771,26 +767,7 @@ def main(argv=None):
     parser = trial_parser(__doc__.splitlines()[0], "/tmp/fluxpart-trial18", VARIANTS)
     options = parser.parse_args(argv)
     variant = chosen_variant(parser, options, VARIANTS)
-    options.out.mkdir(parents=True, exist_ok=True)
-    rows = []
-    t0 = time.perf_counter()
-    for key in (options.runs or ",".join(SITES)).split(","):
-        site = SITES[key]
-        data, truth = simulate(site, variant, options.seed_offset)
-        folder = options.out / f"site_{key}"
-        toml_name = write_site(site, data, folder, processing_text(options, truth))
-        print(f"\n   {key} planted: {truth.attrs['note']}")
-        check, run = check_and_run(toml_name, folder, "out", f"{key} {site.name}")
-        if run is None:
-            continue
-        warns = run_warnings(run, time.perf_counter() - t0)
-        for row in score(site, truth, folder / "out", check):
-            row["warnings"] = warns
-            print_row(row)
-            rows.append(row)
-    code = finish(rows, options.out)
-    print(f"({time.perf_counter() - t0:.0f} s)")
-    return code
+    return run_sites(options, SITES, simulate, write_site, score, print_row, variant)
 
 
 if __name__ == "__main__":

@@ -1,9 +1,11 @@
 """Scoring shared by the independent known-truth trials (``trial_third.py`` to
-``trial_eleventh.py``).
+``trial_nineteenth.py``).
 
 Only the scoring is shared (and, since ``trial_eighteenth.py``, the command line and the
-loop over a run's budget years): each trial keeps its own weather, flux physics and file
-layouts, so that the trials stay independent of each other and of ``fluxpart.scenarios``.
+loop over a run's budget years; since ``trial_nineteenth.py`` the loop over the sites,
+``run_sites``, and the scoring of a run's budget years, ``score_budget_years``): each trial
+keeps its own weather, flux physics and file layouts, so that the trials stay independent
+of each other and of ``fluxpart.scenarios``.
 
 The targets are those of issue 11: a 95 % interval that holds the truth, |annual NEE error|
 <= 15 g C m-2, nighttime GPP and Reco within 5 %, daytime within 8 %, the u* threshold within
@@ -301,3 +303,71 @@ def night_day_errors(series, truth_part, night, factor) -> dict:
         out[f + "_err_night"] = factor * np.nansum(diff[night])
         out[f + "_err_day"] = factor * np.nansum(diff[~night])
     return out
+
+
+def record_scores(series, truth_part, factor) -> dict:
+    """The u* threshold found (median over the night records of the run's time series)
+    against the planted one (median of the truth's ``thr`` over them), the share of records
+    without measured NEE and the NEE error [g C m-2] of the kept records, with the part of
+    it that the planted u* loss left in them (truth columns ``night``, ``thr``, ``share``,
+    ``nee``)."""
+    night = truth_part.night.to_numpy().astype(bool)
+    found = float(np.nanmedian(series["ustar_threshold"].to_numpy()[night]))
+    planted = float(np.median(truth_part.thr.to_numpy()[night]))
+    kept = series["nee_fill_method"].to_numpy() == "measured"
+    est, true = series["nee_filled"].to_numpy(), truth_part.nee.to_numpy()
+    return {"ustar_found": found, "ustar_planted": planted,
+            "ustar_rel": 100 * (found - planted) / planted,
+            "err_kept": factor * np.nansum((est - true)[kept]),
+            "err_kept_loss": factor * np.nansum(((truth_part.share.to_numpy() - 1)
+                                                 * true)[kept])}
+
+
+def run_sites(options, sites, simulate, write_site, score, print_row, variant=frozenset()):
+    """The trials' main loop: for each site of ``options.runs`` (default: all of `sites`)
+    simulate, write, ``check`` and ``run`` it, score and print its budget years; then the
+    summary. Returns the exit code of :func:`finish`.
+
+    ``simulate(site, variant, seed_offset) -> (data, truth)`` (truth ``attrs["note"]``),
+    ``write_site(site, data, folder, processing) -> toml name``, ``score(site, truth, out,
+    check) -> rows``, ``print_row(row)``.
+    """
+    import time
+
+    options.out.mkdir(parents=True, exist_ok=True)
+    rows = []
+    t0 = time.perf_counter()
+    for key in (options.runs or ",".join(sites)).split(","):
+        site = sites[key]
+        data, truth = simulate(site, variant, options.seed_offset)
+        folder = options.out / f"site_{key}"
+        toml_name = write_site(site, data, folder, processing_text(options, truth))
+        print(f"\n   {key} planted: {truth.attrs['note']}")
+        check, run = check_and_run(toml_name, folder, "out", f"{key} {site.name}")
+        if run is None:
+            continue
+        warns = run_warnings(run, time.perf_counter() - t0)
+        for row in score(site, truth, folder / "out", check):
+            row["warnings"] = warns
+            print_row(row)
+            rows.append(row)
+    code = finish(rows, options.out)
+    print(f"({time.perf_counter() - t0:.0f} s)")
+    return code
+
+
+def score_budget_years(out, truth, key, check, factor, own_parts):
+    """Score every budget year of a run (see :func:`budget_years`): a complete one gets
+    :func:`flux_scores`, :func:`record_scores`, the trial's own error parts
+    (``own_parts(truth_part, series, row)`` updates `row`) and :func:`night_day_errors`;
+    an incomplete one keeps its site-year, period and completeness only."""
+    rows = []
+    for annual_row, part, series, row in budget_years(out, truth, key, check):
+        if series is not None:
+            row.update(flux_scores(annual_row, part, factor))
+            row.update(record_scores(series, part, factor))
+            own_parts(part, series, row)
+            night = part.night.to_numpy().astype(bool)
+            row.update(night_day_errors(series, part, night, factor))
+        rows.append(row)
+    return rows
