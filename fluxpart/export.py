@@ -493,8 +493,8 @@ def to_xarray(result):
                  "partitioning into GPP and Reco",
         "institution": INSTITUTION_PLACEHOLDER,
         "source": f"fluxpart {__version__}",
-        "history": f"computed by fluxpart {__version__} and exported to {_CONVENTIONS} "
-                   "NetCDF by the same release",
+        # a Result in memory carries no release; a folder's is added by _credit
+        "history": f"exported to {_CONVENTIONS} NetCDF by fluxpart {__version__}",
         "references": REFERENCES,
         "site_name": str(site.name),
         "site_latitude": float(site.latitude),
@@ -780,10 +780,11 @@ def _credit(dataset, computed_by: str | None):
     ``source`` is "the method of production of the original data" and ``history``
     "an audit trail for modifications to the original data" (CF-1.10 section 2.6.2):
     a result computed by another release keeps that release as its ``source``, and the
-    export by this one goes to ``history``. A result of this release is left as
-    :func:`to_xarray` made it (``source`` = this release, ``history`` = computed and
-    exported by it; no time of day, so two exports stay byte-identical; since round
-    modeller26, before which it had no ``history``).
+    export by this one goes to ``history``. A result of this release keeps ``source`` =
+    this release, and ``history`` says it computed and exported the series (a
+    :class:`~fluxpart.result.Result` in memory, whose release is not known, says only
+    which release exported it). No time of day, so two exports stay byte-identical;
+    before round modeller26 a result of this release had no ``history``.
 
     Parameters
     ----------
@@ -804,10 +805,15 @@ def _credit(dataset, computed_by: str | None):
     """
     from . import __version__
 
-    if computed_by is not None and computed_by != __version__:
+    if computed_by is None:
+        return dataset
+    if computed_by != __version__:
         dataset.attrs["source"] = f"fluxpart {computed_by}"
         dataset.attrs["history"] = (f"computed by fluxpart {computed_by}; exported to "
-                                    f"CF-1.10 NetCDF by fluxpart {__version__}")
+                                    f"{_CONVENTIONS} NetCDF by fluxpart {__version__}")
+    else:
+        dataset.attrs["history"] = (f"computed by fluxpart {computed_by} and exported to "
+                                    f"{_CONVENTIONS} NetCDF by the same release")
     return dataset
 
 

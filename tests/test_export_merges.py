@@ -14,6 +14,7 @@ offset, the records of each year as its own result folder wrote them).
 
 import dataclasses
 import warnings
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
@@ -67,6 +68,10 @@ def test_two_site_years_merge_record_by_record_with_the_readmes_recipe(two_years
     tables' labels and sums."""
     folders, files = two_years
     capsys.readouterr()
+    readme = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
+    for keywords, call in ((RECIPE, "xr.open_mfdataset("), (STATIONS, 'dim="station"')):
+        shown = readme[readme.index(call):readme.index(")\n", readme.index(call))]
+        assert all(f'{key}="{value}"' in shown for key, value in keywords.items()), call
     opened = [xr.open_dataset(path) for path in files]
     try:        # what open_mfdataset(files, **RECIPE) does once it has opened the files
         merged = xr.combine_by_coords(opened, **RECIPE).load()
@@ -105,11 +110,16 @@ def test_sites_in_other_time_zones_join_on_the_local_labels(written_demo):
     (UTC-5; longitude moved with the clock) have the same local days. Their UTC days are
     other cells (CF 7.1): concatenated as stations (CF 9, appendix H.2) on ``day`` the two
     share no day, and on the label ``local_date`` all 365 line up with equal sums, each
-    station keeping its own UTC midpoints."""
+    station keeping its own UTC midpoints. Invented site; the demo's records."""
+    from fluxpart import __version__ as version
+
     result, _ = written_demo
     west = dataclasses.replace(result.site, name="Harrowby maize (fictional)",
                                utc_offset=-5.0, longitude=-79.8, latitude=47.0)
     datasets = [result.to_xarray(), dataclasses.replace(result, site=west).to_xarray()]
+    # a Result in memory does not know the release that computed it: history says only
+    # which one exported it (CF 2.6.2)
+    assert datasets[0].attrs["history"] == f"exported to CF-1.10 NetCDF by fluxpart {version}"
     on_utc_days = xr.concat([d["nee_daily_sum"] for d in datasets], dim="station",
                             join="outer")
     assert on_utc_days.sizes["day"] == 2 * 365
