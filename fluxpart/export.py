@@ -476,7 +476,7 @@ def to_xarray(result):
     for name in ("time", "day", "month", "year", "time_bounds", "day_bounds", "month_bounds",
                  "year_bounds"):
         dataset[name].encoding.update({"units": _TIME_UNITS, "calendar": _CALENDAR,
-                                       "dtype": "float64"})
+                                       "dtype": "int64"})
     for variable in dataset.data_vars.values():
         # NaN marks a missing float; the flags have no missing value (no _FillValue)
         variable.encoding["_FillValue"] = np.nan if variable.dtype.kind == "f" else None
