@@ -296,9 +296,14 @@ def to_xarray(result):
         g m-2 (carbon) with their 1-sigma and, for the years, the 95 % interval;
         drivers in CF units; flags with
         ``flag_values``/``flag_meanings``; times in UTC with bounds; the site as
-        global attributes. Each variable's unit is a UDUNITS-2 string. For a result
-        folder computed by another release, ``source`` names that release and
-        ``history`` the export (:func:`_credit`).
+        global attributes. Each variable's unit is a UDUNITS-2 string. ``source``
+        names the release that computed the series where known (a result folder
+        computed by another release: that release, :func:`_credit`), ``history`` the
+        export; ``references`` the methods' papers; ``institution`` is a placeholder.
+        The auxiliary coordinates ``budget_year``, ``local_date`` and ``local_month``
+        hold the budget tables' labels. Times are whole minutes, stored as int64, so
+        that xarray writing the Dataset again gives its coordinates no ``_FillValue``
+        (CF-1.10 2.5.1; it gives one to every float variable).
 
     Raises
     ------
@@ -475,6 +480,10 @@ def to_xarray(result):
     dataset = xr.Dataset(data_vars=data_vars, coords=coords)
     for name in ("time", "day", "month", "year", "time_bounds", "day_bounds", "month_bounds",
                  "year_bounds"):
+        # whole minutes: records of 30 or 60 min, UTC offsets in quarter hours, cells of
+        # whole days (their middles whole hours). An integer, unlike a float, gets no
+        # _FillValue when xarray writes a Dataset read from the file again, which made
+        # every rewritten or merged file break CF-1.10 2.5.1 (round modeller26)
         dataset[name].encoding.update({"units": _TIME_UNITS, "calendar": _CALENDAR,
                                        "dtype": "int64"})
     for variable in dataset.data_vars.values():
