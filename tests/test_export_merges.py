@@ -184,3 +184,20 @@ def test_a_repositorys_global_attributes_and_each_fluxs_sign(merged):
         assert len(fluxes) == 6 + 5 * 2 * 3
         for name in fluxes:
             assert "positive = " in dataset[name].attrs["long_name"], name
+
+
+def test_a_monthly_mean_converts_to_grams_per_day_and_a_sum_per_month_does_not(merged):
+    """README: for g C m-2 d-1 per month convert the monthly mean, not the sum. cf_units
+    (UDUNITS-2) converts the mean [kg m-2 s-1] to g m-2 d-1, which x the 29 days of
+    February 2020 (Gregorian calendar; a complete month) gives the month's sum; the sum
+    read as g m-2 month-1 (UDUNITS' month: 30.44 days) is 5 % off."""
+    cf_units = pytest.importorskip("cf_units")
+    years = merged[1]["years"]
+    february = years.isel(month=list(years["local_month"].to_numpy()).index("2020-02"))
+    assert float(february["share_present_monthly"]) == 1.0
+    per_day = cf_units.Unit(february["gpp_daytime_monthly_mean"].attrs["units"]).convert(
+        float(february["gpp_daytime_monthly_mean"]), cf_units.Unit("g m-2 d-1"))
+    total = float(february["gpp_daytime_monthly_sum"])
+    assert per_day * 29 == pytest.approx(total, rel=1e-12)
+    per_udunits_month = cf_units.Unit("g m-2 month-1").convert(total, cf_units.Unit("g m-2 d-1"))
+    assert per_udunits_month * 29 / total == pytest.approx(29 / 30.4368, rel=1e-4)
