@@ -31,8 +31,9 @@ one the CSVW standard's site-wide discovery looks for beside the CSV files):
   "yyyy-MM-ddTHH:mm:ssxxx"}``, or for a labelled column ``{"base": "string", "format":
   "^(?:measured|A|...)$"}``, the pattern of its labels: :func:`_labels_datatype`),
   ``schema:unitText`` (the unit, a UDUNITS-2 string, the same as the Parquet field's;
-  left out where a column has none: names, labels, times) and ``dc:description`` (the Parquet field's description). ``schema:unitText`` is the
-  schema.org property for "a unit of measurement given as text"; the substance (carbon,
+  left out where a column has none: names, labels, times) and ``dc:description`` (the
+  Parquet field's description). ``schema:unitText`` is the schema.org property for "a
+  unit of measurement given as text"; the substance (carbon,
   CO2) is named in the description, as in the Parquet metadata (UDUNITS-2 reads
   ``g C m-2`` as gram-coulomb);
 - per table: ``url`` (the CSV file), ``dc:title``, ``tableSchema`` (``columns`` and the
