@@ -27,12 +27,17 @@ Layout (one file, four time axes):
   stated 95 % interval ``*_annual_sum_ci95_low`` / ``_high``, the coverage shares and
   the u* threshold of each year (:func:`_period_variables`), and the auxiliary coordinate
   ``budget_year``, the annual table's label (the calendar year a budget year starts in);
+  ``local_date`` (on ``day``) and ``local_month`` (on ``month``) likewise hold the daily
+  and monthly tables' labels as ISO 8601 strings, on which the files of sites in other
+  time zones (whose local days are other UTC cells) and the Parquet tables join;
 - ``time_bounds``, ``day_bounds``, ``month_bounds`` and ``year_bounds`` give each cell's
   start and end; coordinate values
   are the cell midpoints, in UTC (the site's local standard time minus its
   ``utc_offset``, which is also a global attribute);
 - scalar coordinates ``lat``, ``lon`` and ``station_name`` (``featureType =
-  "timeSeries"``) and the site, the record length and the caution as global attributes;
+  "timeSeries"``) and the site, the record length and the caution as global attributes,
+  with CF's ``title``, ``institution`` (a placeholder: fluxpart records none), ``source``
+  (the release), ``history`` and ``references`` (the methods' publications);
 - the respiration choices the partitioned series rest on (the temperature, its delay,
   how it was chosen, the constant-Q10 form's weight;
   :func:`fluxpart.respiration_facts.respiration_facts`) as global attributes
@@ -79,8 +84,8 @@ from .store import (
 )
 from .units import KG_CARBON_PER_UMOL
 
-__all__ = ["STANDARD_NAMES", "command_export", "to_xarray", "write_netcdf",
-           "written_by_fluxpart"]
+__all__ = ["INSTITUTION_PLACEHOLDER", "REFERENCES", "STANDARD_NAMES", "command_export",
+           "to_xarray", "write_netcdf", "written_by_fluxpart"]
 
 #: CF standard names used, per exported variable. Recalled from the CF standard name
 #: table (m) when first written; each found, with canonical units the exported unit
@@ -115,9 +120,10 @@ _FLUXES = {
     "nee": ("nee_filled", "net ecosystem exchange of CO2 as carbon, gap-filled; positive = "
             "release to the atmosphere, negative = uptake"),
     "gpp_nighttime": ("gpp_nighttime", "gross primary production as carbon, nighttime method "
-                      "(Reco - NEE); at night it scatters around zero and can be negative"),
+                      "(Reco - NEE); positive = uptake by photosynthesis; at night it "
+                      "scatters around zero and can be negative"),
     "gpp_daytime": ("gpp_daytime", "gross primary production as carbon, daytime "
-                    "light-response method; >= 0"),
+                    "light-response method; positive = uptake by photosynthesis, >= 0"),
     "reco_nighttime": ("reco_nighttime", "ecosystem respiration as carbon, nighttime method "
                        "(Lloyd-Taylor); positive = release"),
     "reco_daytime": ("reco_daytime", "ecosystem respiration as carbon, daytime light-response "
@@ -131,6 +137,25 @@ _DRIVERS = {   # canonical name -> (file column, export unit, factor, long name)
     "ustar": ("ustar", "m s-1", 1.0, "friction velocity u*, as measured"),
     "rh": ("rh", "percent", 1.0, "relative humidity, as measured"),
 }
+#: CF-1.10 2.6.2 ``institution`` ("where the original data was produced"): no setting of
+#: fluxpart names it, so the file says so and what to put there.
+INSTITUTION_PLACEHOLDER = ("not stated: fluxpart records no institution; put the institution "
+                           "that runs the site here before submitting the file to a data "
+                           "repository")
+#: CF-1.10 2.6.2 ``references`` ("published or web-based references that describe the data
+#: or methods used to produce it"): the methods of the series in the file, as the modules
+#: computing them cite them (journal, volume and pages recalled (m) where not in
+#: ../shared/reference-checks.md; Barr et al. 2013 wholly (m)).
+REFERENCES = (
+    "Reichstein, M. et al. (2005), Global Change Biology 11, 1424-1439 (gap filling by "
+    "marginal distribution sampling; nighttime partitioning); Lloyd, J. and Taylor, J. A. "
+    "(1994), Functional Ecology 8, 315-323 (temperature response of respiration); Lasslop, "
+    "G. et al. (2010), Global Change Biology 16, 187-208 (daytime light-response "
+    "partitioning); Papale, D. et al. (2006), Biogeosciences 3, 571-583 (screening, u* "
+    "threshold); Barr, A. G. et al. (2013), Agricultural and Forest Meteorology 171-172, "
+    "31-45 (u* change-point detection); Richardson, A. D. et al. (2006), Agricultural and "
+    "Forest Meteorology 136, 1-18 (random error); Eaton, B. et al. (2022), NetCDF Climate "
+    "and Forecast (CF) Metadata Conventions 1.10")
 _CAUTION = ("A tower budget is one line of evidence for carbon-credit quantification, not a "
             "certified credit; the applicable crediting methodology and accredited verification "
             "decide how it may be used.")
@@ -271,9 +296,14 @@ def to_xarray(result):
         g m-2 (carbon) with their 1-sigma and, for the years, the 95 % interval;
         drivers in CF units; flags with
         ``flag_values``/``flag_meanings``; times in UTC with bounds; the site as
-        global attributes. Each variable's unit is a UDUNITS-2 string. For a result
-        folder computed by another release, ``source`` names that release and
-        ``history`` the export (:func:`_credit`).
+        global attributes. Each variable's unit is a UDUNITS-2 string. ``source``
+        names the release that computed the series where known (a result folder
+        computed by another release: that release, :func:`_credit`), ``history`` the
+        export; ``references`` the methods' papers; ``institution`` is a placeholder.
+        The auxiliary coordinates ``budget_year``, ``local_date`` and ``local_month``
+        hold the budget tables' labels. Times are whole minutes, stored as int64, so
+        that xarray writing the Dataset again gives its coordinates no ``_FillValue``
+        (CF-1.10 2.5.1; it gives one to every float variable).
 
     Raises
     ------
@@ -429,6 +459,15 @@ def to_xarray(result):
         "budget_year": ("year", np.asarray(result.annual.index, dtype=np.int32), {
             "long_name": "budget year as labelled in the annual table (year): the calendar "
                          "year of local standard time in which the budget year starts"}),
+        # the daily and monthly tables' labels: a site's local day is its own UTC cell,
+        # so sites in other time zones share no `day` value; the label joins them (and
+        # the Parquet tables) where the midpoint's UTC date is another day (round modeller26)
+        "local_date": ("day", _labels(daily.index, "%Y-%m-%d"), {
+            "long_name": "local standard date of the day, as labelled in the daily table "
+                         "(date), ISO 8601"}),
+        "local_month": ("month", _labels(result.monthly.index, "%Y-%m"), {
+            "long_name": "calendar month of local standard time, as labelled in the monthly "
+                         "table (month), ISO 8601"}),
         "lat": ((), float(site.latitude), {"standard_name": "latitude",
                                            "units": "degrees_north"}),
         "lon": ((), float(site.longitude), {"standard_name": "longitude",
@@ -441,8 +480,12 @@ def to_xarray(result):
     dataset = xr.Dataset(data_vars=data_vars, coords=coords)
     for name in ("time", "day", "month", "year", "time_bounds", "day_bounds", "month_bounds",
                  "year_bounds"):
+        # whole minutes: records of 30 or 60 min, UTC offsets in quarter hours, cells of
+        # whole days (their middles whole hours). An integer, unlike a float, gets no
+        # _FillValue when xarray writes a Dataset read from the file again, which made
+        # every rewritten or merged file break CF-1.10 2.5.1 (round modeller26)
         dataset[name].encoding.update({"units": _TIME_UNITS, "calendar": _CALENDAR,
-                                       "dtype": "float64"})
+                                       "dtype": "int64"})
     for variable in dataset.data_vars.values():
         # NaN marks a missing float; the flags have no missing value (no _FillValue)
         variable.encoding["_FillValue"] = np.nan if variable.dtype.kind == "f" else None
@@ -457,7 +500,11 @@ def to_xarray(result):
         "featureType": "timeSeries",
         "title": f"Eddy-covariance carbon fluxes of {site.name}: gap-filled NEE and its "
                  "partitioning into GPP and Reco",
+        "institution": INSTITUTION_PLACEHOLDER,
         "source": f"fluxpart {__version__}",
+        # a Result in memory carries no release; a folder's is added by _credit
+        "history": f"exported to {_CONVENTIONS} NetCDF by fluxpart {__version__}",
+        "references": REFERENCES,
         "site_name": str(site.name),
         "site_latitude": float(site.latitude),
         "site_longitude": float(site.longitude),
@@ -472,6 +519,11 @@ def to_xarray(result):
         "comment": _CAUTION,
     }
     return dataset
+
+
+def _labels(index, pattern: str) -> np.ndarray:
+    """The local labels of a budget table's index as ISO 8601 strings (`pattern`)."""
+    return np.asarray(pd.DatetimeIndex(index).strftime(pattern), dtype=str)
 
 
 _PERIOD_TEXT = {"month": ("monthly", "calendar month of local standard time"),
@@ -737,8 +789,11 @@ def _credit(dataset, computed_by: str | None):
     ``source`` is "the method of production of the original data" and ``history``
     "an audit trail for modifications to the original data" (CF-1.10 section 2.6.2):
     a result computed by another release keeps that release as its ``source``, and the
-    export by this one goes to ``history``. A result of this release is left as
-    :func:`to_xarray` made it (``source`` = this release, no ``history``).
+    export by this one goes to ``history``. A result of this release keeps ``source`` =
+    this release, and ``history`` says it computed and exported the series (a
+    :class:`~fluxpart.result.Result` in memory, whose release is not known, says only
+    which release exported it). No time of day, so two exports stay byte-identical;
+    before round modeller26 a result of this release had no ``history``.
 
     Parameters
     ----------
@@ -759,10 +814,15 @@ def _credit(dataset, computed_by: str | None):
     """
     from . import __version__
 
-    if computed_by is not None and computed_by != __version__:
+    if computed_by is None:
+        return dataset
+    if computed_by != __version__:
         dataset.attrs["source"] = f"fluxpart {computed_by}"
         dataset.attrs["history"] = (f"computed by fluxpart {computed_by}; exported to "
-                                    f"CF-1.10 NetCDF by fluxpart {__version__}")
+                                    f"{_CONVENTIONS} NetCDF by fluxpart {__version__}")
+    else:
+        dataset.attrs["history"] = (f"computed by fluxpart {computed_by} and exported to "
+                                    f"{_CONVENTIONS} NetCDF by the same release")
     return dataset
 
 

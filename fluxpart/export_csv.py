@@ -27,11 +27,13 @@ The CSV files (RFC 4180 shape):
 one the CSVW standard's site-wide discovery looks for beside the CSV files):
 
 - per column: ``name`` and ``titles`` (the header), ``datatype`` (``double``,
-  ``integer``, ``boolean``, ``string``, or ``{"base": "datetime", "format":
-  "yyyy-MM-ddTHH:mm:ssxxx"}``), ``schema:unitText`` (the unit, a UDUNITS-2 string, the
-  same as the Parquet field's; left out where a column has none: names, labels, times)
-  and ``dc:description`` (the Parquet field's description). ``schema:unitText`` is the
-  schema.org property for "a unit of measurement given as text"; the substance (carbon,
+  ``integer``, ``boolean``, ``string``, ``{"base": "datetime", "format":
+  "yyyy-MM-ddTHH:mm:ssxxx"}``, or for a labelled column ``{"base": "string", "format":
+  "^(?:measured|A|...)$"}``, the pattern of its labels: :func:`_labels_datatype`),
+  ``schema:unitText`` (the unit, a UDUNITS-2 string, the same as the Parquet field's;
+  left out where a column has none: names, labels, times) and ``dc:description`` (the
+  Parquet field's description). ``schema:unitText`` is the schema.org property for "a
+  unit of measurement given as text"; the substance (carbon,
   CO2) is named in the description, as in the Parquet metadata (UDUNITS-2 reads
   ``g C m-2`` as gram-coulomb);
 - per table: ``url`` (the CSV file), ``dc:title``, ``tableSchema`` (``columns`` and the
@@ -150,13 +152,32 @@ def _float_text(values: np.ndarray) -> list[str]:
     return out
 
 
+def _labels_datatype(categories) -> dict:
+    """The CSVW datatype of a labelled column: a string that is one of `categories`.
+
+    CSVW's ``format`` of a string datatype is a regular expression (ECMAScript syntax)
+    its values must match; anchored, it admits the labels and nothing else, as a NetCDF
+    flag's ``flag_meanings`` does (round modeller26). An empty field is a missing value
+    (the default ``null``) and is not matched.
+
+    References
+    ----------
+    W3C (2015). Metadata Vocabulary for Tabular Data, section 5.11.2 (formats for other
+    types: a regular expression) (m).
+    """
+    escaped = [re.sub(r"([\\^$.|?*+()\[\]{}/])", r"\\\1", str(label)) for label in categories]
+    return {"base": "string", "format": f"^(?:{'|'.join(escaped)})$"}
+
+
 def _column(values: pd.Series, offset: str) -> tuple[list[str], object]:
     """Text of every value of one column and its CSVW datatype."""
     dtype = values.dtype
     if isinstance(dtype, pd.CategoricalDtype) or pd.api.types.is_string_dtype(dtype) \
             or pd.api.types.is_object_dtype(dtype):
+        datatype = (_labels_datatype(dtype.categories)
+                    if isinstance(dtype, pd.CategoricalDtype) else "string")
         return [("" if v is None or (isinstance(v, float) and v != v) or v is pd.NA
-                 else str(v)) for v in values.astype(object).tolist()], "string"
+                 else str(v)) for v in values.astype(object).tolist()], datatype
     if pd.api.types.is_bool_dtype(dtype):
         mask = values.isna().to_numpy()
         return ["" if missing else ("true" if value else "false")

@@ -132,6 +132,8 @@ def test_values_equal_the_parquet_tables(exported):
                 assert [int(t) if t else None for t in text] == values
             elif datatype == "boolean":
                 assert [{"true": True, "false": False, "": None}[t] for t in text] == values
+            elif isinstance(datatype, dict) and datatype["base"] == "string":   # labels
+                assert text == ["" if v is None else str(v) for v in values], column["name"]
             elif isinstance(datatype, dict):
                 assert datatype["base"] == "datetime"
                 for cell, value in zip(text, values, strict=True):
@@ -418,3 +420,30 @@ def test_missing_infinite_and_quoted_cells_read_back():
     assert rows[2] == ["1", "", "", "", "false"]
     assert rows[3][1:4] == ["INF", "", 'say "hi"'] and rows[4][1] == "-INF"
     assert float(rows[3][1]) == np.inf and float(rows[4][1]) == -np.inf   # Python reads INF
+
+
+def test_a_labelled_column_admits_its_labels_and_nothing_else(exported):
+    """CSVW (W3C 2015, Metadata Vocabulary 5.11.2 (m)): a string datatype's ``format`` is a
+    regular expression its values must match. Each dictionary-encoded (labelled) Parquet
+    column, read with pyarrow, has a pattern of exactly its dictionary's labels: every
+    cell of the CSV matches (an empty cell is a missing value, the default ``null``), a
+    label of another column or a changed case does not (round modeller26)."""
+    folder, target = exported
+    metadata = _metadata(target)
+    checked = 0
+    for table in metadata["tables"]:
+        parquet = pq.read_table(folder / table["url"].replace(".csv", ".parquet"))
+        header, rows = _rows(target / table["url"])
+        for position, column in enumerate(table["tableSchema"]["columns"]):
+            field = parquet.schema.field(column["name"])
+            if not str(field.type).startswith("dictionary"):
+                continue
+            labels = parquet.column(column["name"]).combine_chunks().dictionary.to_pylist()
+            pattern = re.compile(column["datatype"]["format"])
+            assert column["datatype"]["base"] == "string"
+            assert all(pattern.search(row[position]) for row in rows if row[position])
+            assert all(pattern.search(label) for label in labels)
+            for other in ("filled", "Measured", "measured ", "A|B", ""):
+                assert other in labels or not pattern.search(other), (column["name"], other)
+            checked += 1
+    assert checked >= 6     # rejection_reason, nee_fill_method and the fill qualities
