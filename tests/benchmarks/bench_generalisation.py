@@ -52,17 +52,23 @@ VARIANTS = {
 }
 
 
-def generate(seed: int) -> tuple[str, scenarios.SiteYear]:
-    """The site-year of `seed`: variant ``seed % 7`` drawn from scenario seed 1000 + seed."""
+def draw(seed: int) -> tuple[str, scenarios.Scenario]:
+    """The scenario of `seed`: variant ``seed % 7`` drawn from scenario seed 1000 + seed."""
     name = list(VARIANTS)[seed % len(VARIANTS)]
     saved = dict(scenarios.ARCHETYPES)
     scenarios.ARCHETYPES.clear()
     scenarios.ARCHETYPES[name] = VARIANTS[name]   # draw() picks the only archetype there
     try:
-        return name, scenarios.generate(1000 + seed)
+        return name, scenarios.draw(1000 + seed)
     finally:
         scenarios.ARCHETYPES.clear()
         scenarios.ARCHETYPES.update(saved)
+
+
+def generate(seed: int) -> tuple[str, scenarios.SiteYear]:
+    """The site-year of `seed` (:func:`draw`, then simulated)."""
+    name, scenario = draw(seed)
+    return name, scenarios.generate(scenario)
 
 
 def scored(site_year: scenarios.SiteYear, row: dict) -> dict:
