@@ -208,7 +208,7 @@ class Config:
         54 → 58; :func:`fluxpart.gapfill.fill_marginal`, Notes). ``"donor_mean"``: the
         donors' mean, as Reichstein et al. (2005).
     gapfill_night_light : str
-        ``"tested"`` (new, in round nightgrowth): the night NEE fills of the
+        ``"tested"`` (new in 0.29.0): the night NEE fills of the
         local-linear estimate are also moved by the flux's slope on the preceding 24 h
         mean Rg, in the calendar years whose own measured, u*-filtered nights show
         night NEE rising with the preceding day's light at the same air and soil
@@ -218,7 +218,7 @@ class Config:
         photosynthate; Högberg et al. 2001 (m)) their fills from turbulent nights
         run low. The test, not a threshold of ours, decides where: an always-on
         regressor worsened the generated benchmarks, whose nights lack the coupling
-        (0.27.0's trial17 changelog). Measured (DEVELOPERS.md, round nightgrowth): the
+        (0.27.0's trial17 changelog). Measured (DEVELOPERS.md, 0.29.0 changelog): the
         generated benchmarks' 52 site-years unchanged (RMS NEE error 4.98, 7.64 → 7.63,
         6.38 g C m-2; the test passed in one of their 52 central fills, a false call
         that moved NEE by 0.19), independent trials' summed |NEE error| 783 → 753 g C
@@ -231,7 +231,7 @@ class Config:
         such regressor. Only the local-linear estimate with separate night donors moves
         a night fill by a regressor: with ``gapfill_estimate = "donor_mean"`` or
         ``gapfill_donors = "similar_conditions_only"`` nothing is tested and
-        ``night_fill_light`` is empty (review45).
+        ``night_fill_light`` is empty (since 0.29.0).
     gapfill_min_donors : int
         Fewest records a gap-filling pass must average to fill an NEE gap; 3, our
         choice: one record's random error or an undetected spike must not set a
