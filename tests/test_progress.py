@@ -142,8 +142,8 @@ def test_process_reports_its_steps_through_logging(caplog):
 def test_the_u_star_runs_are_named_in_words():
     """The progress line named the u* scenario runs by their internal keys ("gap filling
     and partitioning (ustar_p16)"; review46); it names the bootstrap percentile."""
-    from fluxpart.ustar_runs import step_label
+    from fluxpart.ustar_runs import _step_label
 
-    assert step_label("ustar_p16") == ("gap filling and partitioning (u* threshold at its "
+    assert _step_label("ustar_p16") == ("gap filling and partitioning (u* threshold at its "
                                        "bootstrap percentile 16)")
-    assert step_label("central") == "gap filling and partitioning (central run)"
+    assert _step_label("central") == "gap filling and partitioning (central run)"
