@@ -69,6 +69,7 @@ from .resultdir import (
     replace_refusal,
     swapped_in,
 )
+from .schema import NEE_SCOPE
 from .store import atomic_write_bytes, full_disk_remedy, require_owner_access
 from .uncertainty_parts import PART_LABELS, uncertainty_parts
 from .units import CARBON_UNIT, FLUX_UNIT, T_CO2_HA_PER_G_C_M2, display_unit
@@ -501,7 +502,7 @@ def _reading_notes(combined_used: bool) -> str:
     notes = [
         "NEE &lt; 0 is net uptake by the ecosystem; GPP and Reco are positive. Budgets are in "
         "grams of carbon per square metre (g C m-2); t CO2 ha-1 = g C m-2 × "
-        f"{CO2_MOLAR_MASS}/{CARBON_MOLAR_MASS} × 0.01.",
+        f"{CO2_MOLAR_MASS}/{CARBON_MOLAR_MASS} × 0.01. {html.escape(NEE_SCOPE)}.",
         "The uncertainty covers the parts the run computed and wrote beside each total (the "
         "random error, gap filling with its bias on artificial gaps, the correlation of "
         "fills within a week and with the records they average and a change of state across "

@@ -456,6 +456,19 @@ def test_page_order_is_caution_summary_warnings_figures_details_settings(folder)
     assert text.count("<figure") == len(FIGURES)
 
 
+def test_the_summary_says_what_nee_leaves_out(folder):
+    """The card gave a net uptake in t CO2 ha-1 with no word that a harvest, grazing or
+    manure moves carbon the tower does not see (review46: the maize example's 18 t CO2
+    ha-1, most of it carried off at harvest). The reading notes under the cards say so,
+    after the caution and before the warnings."""
+    from fluxpart.schema import NEE_SCOPE
+
+    text = html.unescape(folder["text"])
+    assert "harvest" in NEE_SCOPE and "manure" in NEE_SCOPE
+    place = text.index(NEE_SCOPE)
+    assert text.index('id="caution-top"') < place < text.index('id="section-warnings"')
+
+
 @pytest.mark.parametrize("which", ["folder", "older"])
 def test_summary_numbers_equal_the_annual_table(which, request):
     """Summary spans carry the annual.parquet values exactly and print them rounded."""
