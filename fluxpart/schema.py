@@ -156,15 +156,6 @@ NOT_QUANTIFIED = (
     "lateral carbon fluxes and harvest export (outside the tower's view)",
 )
 _NOT_COVERED = "not included: " + "; ".join(NOT_QUANTIFIED)
-
-#: What NEE leaves out, said beside every net uptake a reader may take for stored carbon
-#: (the command line's tonnes, the report's summary): the tower sees the CO2 exchanged with
-#: the air above the canopy only; the ecosystem's carbon balance adds the carbon moved
-#: otherwise (net ecosystem carbon balance; Chapin et al. 2006, Ecosystems 9:1041-1050 (m)).
-#: A maize field's 18 t CO2 ha-1 of net uptake leaves largely with its harvest.
-NEE_SCOPE = ("NEE counts only the CO2 exchanged with the air above the canopy: carbon removed "
-             "by a harvest or grazing, brought in as manure, or lost as methane or in water "
-             "is not in it, so a net uptake alone is not the carbon the ecosystem stored")
 _TOTAL_PARTS = {
     "nee": "random, gap filling and u* threshold",
     "gpp_nighttime": "random and gap filling of the records outside the night, u* threshold, "

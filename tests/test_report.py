@@ -461,7 +461,7 @@ def test_the_summary_says_what_nee_leaves_out(folder):
     manure moves carbon the tower does not see (review46: the maize example's 18 t CO2
     ha-1, most of it carried off at harvest). The reading notes under the cards say so,
     after the caution and before the warnings."""
-    from fluxpart.schema import NEE_SCOPE
+    from fluxpart.manifest import NEE_SCOPE
 
     text = html.unescape(folder["text"])
     assert "harvest" in NEE_SCOPE and "manure" in NEE_SCOPE
@@ -1337,6 +1337,27 @@ def test_a_method_difference_rounded_to_zero_shows_no_minus_sign():
     line = re.sub(r"<[^>]+>", "", re.search(r"Method agreement:</strong>(.*?)</li>",
                                               summary).group(1))
     assert "GPP +0.0 %" in line and "Reco -1.2 %" in line and "-0.0" not in line
+
+
+def test_method_agreement_gives_the_difference_in_grams_beside_the_percentage():
+    """Seven winter weeks of a record (a partial budget year) summed GPP 0.41 and 1.15
+    g C m-2 by the two methods: "DISAGREE (GPP +94.2 %)" alone read as a failed
+    partitioning (review46). The card gives the difference in g C m-2 beside each
+    percentage, from the annual table's method_difference columns (1.15 - 0.41 = 0.74;
+    the relative one is 0.74 / 0.78 = 0.949, arithmetic)."""
+    index = pd.date_range("2023-01-01", "2023-02-19 23:30", freq="30min")
+    annual = pd.DataFrame({"nee": [11.2], "methods_agree": [False],
+                           "gpp_method_difference": [0.74], "gpp_relative_difference": [0.949],
+                           "reco_method_difference": [-0.44],
+                           "reco_relative_difference": [-0.036]},
+                          index=pd.Index([2023], name="year"))
+    written = report.Written(manifest={}, tables={
+        "timeseries": pd.DataFrame({"nee_filled": 1.0}, index=index), "annual": annual})
+    summary, _ = report._summary_card(written)
+    line = re.sub(r"<[^>]+>", "", re.search(r"Method agreement:</strong>(.*?)</li>",
+                                              summary).group(1))
+    assert "DISAGREE" in line
+    assert "GPP +94.9 % (+0.7 g C m-2), Reco -3.6 % (-0.4 g C m-2)" in line
 
 
 def test_method_agreement_says_where_the_daytime_method_took_the_nighttime_e0():
