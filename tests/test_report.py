@@ -860,7 +860,7 @@ def test_report_modules_import_no_pipeline_or_method_module():
     """The report reads the folder only: its modules import no pipeline or method module."""
     allowed = {"config", "constants", "errors", "figures", "manifest", "store", "units",
                "responses", "progress", "resultdir", "fingerprint", "uncertainty_parts",
-               "measured_months"}
+               "measured_months", "install_hints"}
     root = Path(fluxpart.__file__).parent
     for name in ("report.py", "figures.py"):
         tree = ast.parse((root / name).read_text(encoding="utf-8"))
@@ -973,7 +973,9 @@ def test_page_is_light(folder):
 def test_missing_matplotlib_names_the_report_extra(folder, monkeypatch, tmp_path):
     """Without matplotlib the report stops with one error naming the install command."""
     monkeypatch.setitem(sys.modules, "matplotlib", None)
-    with pytest.raises(FluxpartError, match=re.escape('pip install "fluxpart[report]"')):
+    from fluxpart.install_hints import install_command
+
+    with pytest.raises(FluxpartError, match=re.escape(install_command("report"))):
         build_report(folder["directory"], tmp_path / "never")
     assert not (tmp_path / "never").exists()
 
