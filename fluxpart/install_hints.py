@@ -25,8 +25,8 @@ def _checkout() -> Path | None:
         project = tomllib.loads((root / "pyproject.toml").read_text(encoding="utf-8"))
     except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
         return None
-    name = project.get("project", {}).get("name") if isinstance(project, dict) else None
-    return root if name == "fluxpart" else None
+    section = project.get("project")
+    return root if isinstance(section, dict) and section.get("name") == "fluxpart" else None
 
 
 def install_command(extra: str, *, reinstall: bool = False) -> str:
