@@ -1322,6 +1322,15 @@ def test_a_budget_year_of_one_calendar_years_records_shows_that_years_range():
                         "below it were removed before gap filling."), years
 
 
+def _agreement_line(index, annual) -> str:
+    """The summary card's method-agreement item, as text, for a minimal written result."""
+    written = report.Written(manifest={}, tables={
+        "timeseries": pd.DataFrame({"nee_filled": 1.0}, index=index), "annual": annual})
+    summary, _ = report._summary_card(written)
+    return re.sub(r"<[^>]+>", "", re.search(r"Method agreement:</strong>(.*?)</li>",
+                                            summary).group(1))
+
+
 def test_a_method_difference_rounded_to_zero_shows_no_minus_sign():
     """A relative difference of -0.04 % rounds to 0.0 at one decimal, and IEEE 754 keeps
     the sign of a negative number rounded to zero (Python's format of -0.0 is '-0.0'): the
@@ -1333,11 +1342,7 @@ def test_a_method_difference_rounded_to_zero_shows_no_minus_sign():
                            "gpp_relative_difference": [-0.0004],
                            "reco_relative_difference": [-0.0123]},
                           index=pd.Index([2021], name="year"))
-    written = report.Written(manifest={}, tables={
-        "timeseries": pd.DataFrame({"nee_filled": 1.0}, index=index), "annual": annual})
-    summary, _ = report._summary_card(written)
-    line = re.sub(r"<[^>]+>", "", re.search(r"Method agreement:</strong>(.*?)</li>",
-                                              summary).group(1))
+    line = _agreement_line(index, annual)
     assert "GPP +0.0 %" in line and "Reco -1.2 %" in line and "-0.0" not in line
 
 
@@ -1353,11 +1358,7 @@ def test_method_agreement_gives_the_difference_in_grams_beside_the_percentage():
                            "reco_method_difference": [-0.44],
                            "reco_relative_difference": [-0.036]},
                           index=pd.Index([2023], name="year"))
-    written = report.Written(manifest={}, tables={
-        "timeseries": pd.DataFrame({"nee_filled": 1.0}, index=index), "annual": annual})
-    summary, _ = report._summary_card(written)
-    line = re.sub(r"<[^>]+>", "", re.search(r"Method agreement:</strong>(.*?)</li>",
-                                              summary).group(1))
+    line = _agreement_line(index, annual)
     assert "DISAGREE" in line
     assert "GPP +94.9 % (+0.7 g C m-2), Reco -3.6 % (-0.4 g C m-2)" in line
 
