@@ -14,6 +14,8 @@ import pandas as pd
 __all__ = ["disagreements", "method_agreement"]
 
 _FLUXES = ("gpp", "reco")
+#: How the messages name each flux, as the README, the report and the tables' descriptions do.
+_LABELS = {"gpp": "GPP", "reco": "Reco"}
 
 
 def method_agreement(budget: pd.DataFrame, margin: float = 0.15) -> pd.DataFrame:
@@ -80,10 +82,10 @@ def disagreements(annual: pd.DataFrame, margin: float) -> list[str]:
         compared = [flux for flux in _FLUXES if np.isfinite(relative[flux])]
         if row["methods_agree"] or not compared or _too_short(row):
             continue    # agreeing, or no sums to compare (a year without data, a stub)
-        missing = [flux.upper() for flux in _FLUXES if flux not in compared]
+        missing = [_LABELS[flux] for flux in _FLUXES if flux not in compared]
         beyond = [flux for flux in compared if abs(relative[flux]) > margin]
         if beyond:
-            parts = [f"{flux.upper()} daytime - nighttime = "
+            parts = [f"{_LABELS[flux]} daytime - nighttime = "
                      f"{row[f'{flux}_method_difference']:+.0f} g C m-2 ({relative[flux]:+.0%})"
                      for flux in compared]
             parts += [f"{name} not compared (a method gave no annual sum)" for name in missing]

@@ -1227,8 +1227,10 @@ def _check_cluster_options(scheduler, workers) -> None:
     try:
         import dask.distributed  # noqa: F401
     except ImportError:
-        raise ConfigError("fluxpart batch needs Dask: install it with "
-                          "pip install 'fluxpart[batch]' (dask[distributed])") from None
+        from .install_hints import install_command
+
+        raise ConfigError("fluxpart batch needs Dask (dask[distributed]): install the batch "
+                          f"extra with {install_command('batch')}") from None
     if workers is not None and (not isinstance(workers, int) or isinstance(workers, bool)
                                 or workers < 1):
         raise ConfigError(f"--workers {workers!r}: expected a whole number >= 1")

@@ -84,6 +84,9 @@ def _format_annual(annual) -> str:
             lines.append(f"  {year}: {row['net_uptake_t_co2_per_ha']:.2f} ± "
                          f"{row['net_uptake_t_co2_per_ha_uncertainty']:.2f} (1 sigma{interval}; "
                          f"u* threshold {row['ustar_threshold']:.3f} m s-1{partial})")
+        from .manifest import NEE_SCOPE
+
+        lines.append(f"  ({NEE_SCOPE})")
     return "\n".join(lines)
 
 

@@ -208,7 +208,7 @@ class Config:
         54 → 58; :func:`fluxpart.gapfill.fill_marginal`, Notes). ``"donor_mean"``: the
         donors' mean, as Reichstein et al. (2005).
     gapfill_night_light : str
-        ``"tested"`` (new, in round nightgrowth): the night NEE fills of the
+        ``"tested"`` (new in 0.29.0): the night NEE fills of the
         local-linear estimate are also moved by the flux's slope on the preceding 24 h
         mean Rg, in the calendar years whose own measured, u*-filtered nights show
         night NEE rising with the preceding day's light at the same air and soil
@@ -218,12 +218,13 @@ class Config:
         photosynthate; Högberg et al. 2001 (m)) their fills from turbulent nights
         run low. The test, not a threshold of ours, decides where: an always-on
         regressor worsened the generated benchmarks, whose nights lack the coupling
-        (0.27.0's trial17 changelog). Measured (DEVELOPERS.md, round nightgrowth): the
-        generated benchmarks' 52 site-years unchanged (RMS NEE error 4.98, 7.64 → 7.63,
-        6.38 g C m-2; the test passed in one of their 52 central fills, a false call
-        that moved NEE by 0.19), independent trials' summed |NEE error| 783 → 753 g C
-        m-2 over 63 site-years, NEE covered in 50 → 53 (trials 6, 16 and 17, two draws
-        of the last two; the seventeenth's rain forest −17.4 / −33.8 → −9.7 / −27.0). Which years
+        (DEVELOPERS.md, 0.27.0 changelog: the seventeenth trial). Measured
+        (DEVELOPERS.md, 0.29.0 changelog): the generated benchmarks' 52 site-years
+        unchanged (RMS NEE error 4.98, 7.64 → 7.63, 6.38 g C m-2; the test passed in one
+        of their 52 central fills, a false call that moved NEE by 0.19), independent
+        trials' summed |NEE error| 783 → 753 g C m-2 over 63 site-years, NEE covered in
+        50 → 53 (trials 6, 16 and 17, two draws of the last two; the seventeenth's rain
+        forest −17.4 / −33.8 → −9.7 / −27.0). Which years
         passed is in the result's ``provenance["night_fill_light"]``. On all 168
         site-years of the three generated benchmarks (release 0.29.0): 16 changed (their
         annual NEE in 5, only intervals in 11); RMS NEE error 5.82 / 8.48 / 9.26 → 5.84 / 8.50 / 9.33 g C m-2,
@@ -231,7 +232,7 @@ class Config:
         such regressor. Only the local-linear estimate with separate night donors moves
         a night fill by a regressor: with ``gapfill_estimate = "donor_mean"`` or
         ``gapfill_donors = "similar_conditions_only"`` nothing is tested and
-        ``night_fill_light`` is empty (review45).
+        ``night_fill_light`` is empty (since 0.29.0).
     gapfill_min_donors : int
         Fewest records a gap-filling pass must average to fill an NEE gap; 3, our
         choice: one record's random error or an undetected spike must not set a

@@ -135,6 +135,8 @@ def _years_of_other_periods(annual: pd.DataFrame) -> list:
 def _short(value) -> str:
     import json
 
+    if value is None:
+        return "none"           # JSON's "null" and an empty list "[]" read as code (review46)
     text = value if isinstance(value, str) else json.dumps(value, sort_keys=True, default=str)
     return text if len(text) <= 120 else text[:117] + "..."
 
@@ -153,8 +155,9 @@ def _recorded_items(first: dict, second: dict) -> list:
         a = [e.get("sha256") for e in _entries(a_prov, key) if isinstance(e, dict)]
         b = [e.get("sha256") for e in _entries(b_prov, key) if isinstance(e, dict)]
         if a != b:
-            items.append(("input", f"{label} SHA-256", _short(a[0] if len(a) == 1 else a),
-                          _short(b[0] if len(b) == 1 else b)))
+            items.append(("input", f"{label} SHA-256",
+                          _short(a[0] if len(a) == 1 else a or None),
+                          _short(b[0] if len(b) == 1 else b or None)))
     if a_prov.get("demo") != b_prov.get("demo"):
         items.append(("input", "demo record", _short(a_prov.get("demo")),
                       _short(b_prov.get("demo"))))

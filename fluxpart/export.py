@@ -165,8 +165,10 @@ def _xarray():
     try:
         import xarray
     except ImportError:
-        raise FluxpartError('the NetCDF export needs xarray and a NetCDF engine; install the '
-                            'netcdf extra: pip install "fluxpart[netcdf]"') from None
+        from .install_hints import install_command
+
+        raise FluxpartError("the NetCDF export needs xarray and a NetCDF engine; install the "
+                            f"netcdf extra: {install_command('netcdf')}") from None
     return xarray
 
 
@@ -187,9 +189,11 @@ def _engine() -> str:
         return engine
     if refused:
         raise FluxpartError(_not_loaded(*refused))
-    raise FluxpartError('writing NetCDF needs netCDF4, or h5netcdf together with h5py (recent '
-                        'h5netcdf releases do not install h5py themselves); install the netcdf '
-                        'extra: pip install "fluxpart[netcdf]" (or pip install h5py)')
+    from .install_hints import install_command
+
+    raise FluxpartError("writing NetCDF needs netCDF4, or h5netcdf together with h5py (recent "
+                        "h5netcdf releases do not install h5py themselves); install the netcdf "
+                        f"extra: {install_command('netcdf')} (or pip install h5py)")
 
 
 def _not_loaded(module: str, text: str) -> str:

@@ -246,6 +246,8 @@ def _import_matplotlib(*, setter_docs=True):
     except ImportError as error:
         import importlib.util
 
+        from .install_hints import install_command
+
         if importlib.util.find_spec("matplotlib") is not None:
             # installed, but a part would not load: under a memory limit (ulimit -v 300
             # MB) its compiled modules' mapping fails ("failed to map segment from shared
@@ -253,11 +255,11 @@ def _import_matplotlib(*, setter_docs=True):
             raise FluxpartError(
                 f"matplotlib is installed but could not be loaded ({error}); where a "
                 "memory limit is set (ulimit -v, a container's or a batch job's), give the "
-                "process more memory, else reinstall the report extra: pip install "
-                '--force-reinstall "fluxpart[report]"') from None
+                "process more memory, else reinstall the report extra: "
+                f"{install_command('report', reinstall=True)}") from None
         raise FluxpartError(
             "the report needs matplotlib, which is not installed; install the report extra "
-            'with: pip install "fluxpart[report]"') from None
+            f"with: {install_command('report')}") from None
     return matplotlib, colors, dates, ticker, _text_cache_canvas(FigureCanvasAgg), MplFigure
 
 

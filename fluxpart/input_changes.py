@@ -43,6 +43,43 @@ def _stamp(when) -> str:
     return pd.Timestamp(when).strftime("%Y-%m-%d %H:%M")
 
 
+#: Where in its interval a file's stamp lies, as a share of the interval ([input] time_marks).
+_MARK_SHARE = {"start": 0.0, "middle": 0.5, "end": 1.0}
+
+
+def _file_stamp(start, reader, interval: pd.Timedelta) -> str:
+    """The stamp the file itself writes for the record starting `start`, as a phrase.
+
+    The result names records by their interval start in local standard time; a file
+    stamped at the interval's end or middle, or in civil time with daylight saving
+    (``[input] time_marks``, ``time_zone``), writes another time for the same record, so an
+    auditor looking for the edited line finds it by this one. Empty where the file's
+    stamp is the start itself, or where its stamps carry their own UTC offset or zone
+    (``%z``, ``%Z``, ``ISO8601``, a closing ``Z``), which the reader converted.
+    """
+    share = _MARK_SHARE.get(getattr(reader, "time_marks", None))
+    zone = getattr(reader, "time_zone", None)
+    time_format = str(getattr(reader, "time_format", ""))
+    if share is None or not isinstance(interval, pd.Timedelta) or pd.isna(interval):
+        return ""
+    if "%z" in time_format or "%Z" in time_format or time_format.upper() == "ISO8601" \
+            or time_format.endswith("Z"):
+        return ""
+    if share == 0.0 and zone is None:
+        return ""
+    stamp = pd.Timestamp(start) + share * interval
+    where = "" if share == 0.0 else f"the interval's {reader.time_marks}"
+    if zone is not None:
+        try:
+            offset = pd.Timedelta(hours=float(reader.site.utc_offset))
+            stamp = (stamp - offset).tz_localize("UTC").tz_convert(zone).tz_localize(None)
+        except (AttributeError, TypeError, ValueError, KeyError):
+            return ""
+        where = f"{where}, " if where else ""
+        where += f"civil time of {zone}"
+    return f", stamped {_stamp(stamp)} in the file ({where}),"
+
+
 def located_changes(site_config: Path, input_path, stored: pd.DataFrame,
                     file_columns: dict | None = None) -> str:
     """Say where a changed input file differs from the input values a result holds.
@@ -85,7 +122,8 @@ def located_changes(site_config: Path, input_path, stored: pd.DataFrame,
         return ""
     try:
         paths = list(input_path) if isinstance(input_path, (list, tuple)) else [input_path]
-        frame, _ = read_site_config(site_config, input_paths=paths).read()
+        reader = read_site_config(site_config, input_paths=paths)
+        frame, _ = reader.read()
     except FluxpartError as error:
         return f"read as the run read it, it is refused now ({error})"
     except (OSError, ValueError) as error:
@@ -109,6 +147,8 @@ def located_changes(site_config: Path, input_path, stored: pd.DataFrame,
     right = then.loc[common].to_numpy()
     differ = ~((left == right) | (np.isnan(left) & np.isnan(right)))
     rows, cols = np.nonzero(differ)
+    steps = np.diff(then.index.to_numpy())
+    interval = pd.Timedelta(np.median(steps)) if len(steps) else pd.NaT
     parts = []
     if len(rows):
         listed = []
@@ -125,7 +165,8 @@ def located_changes(site_config: Path, input_path, stored: pd.DataFrame,
             label = f"{source!r} ({what})" if isinstance(source, str) \
                 else f"{name!r} ({what})" if name == "nee_flag" \
                 else f"{name!r} ({unit})" if unit and unit != "1" else repr(name)
-            listed.append(f"record starting {_stamp(common[row])} {label}: "
+            listed.append(f"record starting {_stamp(common[row])}"
+                          f"{_file_stamp(common[row], reader, interval)} {label}: "
                           f"{_value(right[row, col], name)} then, "
                           f"{_value(left[row, col], name)} now")
         more = "; ..." if len(rows) > _LISTED else ""

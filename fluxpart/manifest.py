@@ -62,6 +62,16 @@ CAUTION = (
     "and by accredited verification."
 )
 
+#: What NEE leaves out, said beside every net uptake a reader may take for stored carbon
+#: (the command line's tonnes, the report's summary; not written into a manifest, whose
+#: caution stays as results were sealed with it): the tower sees the CO2 exchanged with
+#: the air above the canopy only; the ecosystem's carbon balance adds the carbon moved
+#: otherwise (net ecosystem carbon balance; Chapin et al. 2006, Ecosystems 9:1041-1050 (m)).
+#: A maize field's 18 t CO2 ha-1 of net uptake leaves largely with its harvest.
+NEE_SCOPE = ("NEE counts only the CO2 exchanged with the air above the canopy: carbon removed "
+             "by a harvest or grazing, brought in as manure, or lost as methane or in water "
+             "is not in it, so a net uptake alone is not the carbon the ecosystem stored")
+
 _LIBRARIES = ("fluxpart", "numpy", "pandas", "scipy", "statsmodels", "pyarrow")
 _UNHASHED = {
     RUN_LOG: "who ran it, when, where and with which command line; free to differ between "

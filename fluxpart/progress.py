@@ -87,6 +87,7 @@ class Progress:
         self.enabled = _is_terminal(self.stream) if enabled is None else bool(enabled)
         self.done = 0
         self._shown = None
+        self._width = 0
         self._wrote = False
         self._lock = threading.Lock()
 
@@ -126,6 +127,11 @@ class Progress:
         if not force and key == self._shown:
             return
         self._shown = key
-        self.stream.write(self._text())
+        text = self._text()
+        # a shorter line (a label changed: "processing: budgets" after "processing: gap
+        # filling and partitioning (ustar_p84)") is padded over the longer one before it,
+        # which \r alone leaves standing at its end (review46)
+        self.stream.write(text.ljust(self._width))
+        self._width = max(self._width, len(text))
         self.stream.flush()
         self._wrote = True

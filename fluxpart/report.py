@@ -56,7 +56,7 @@ from .figures import (
     unfitted_methods,
     window_status,
 )
-from .manifest import CAUTION, shown_name
+from .manifest import CAUTION, NEE_SCOPE, shown_name
 from .measured_months import month_runs_text, unchecked_months
 from .resultdir import (
     DEFAULT_LOCK_TIMEOUT,
@@ -458,10 +458,10 @@ def _summary_card(written: Written) -> tuple[str, bool]:
             agree = bool(row["methods_agree"])
             margin = written.setting("agreement_margin")
             # + 0.0 turns a difference rounded to -0.0 into 0.0 (no sign without a digit)
-            relative = [f"{name} {round(100 * float(row[column]), 1) + 0.0:+.1f} %"
-                        for name, column in (("GPP", "gpp_relative_difference"),
-                                             ("Reco", "reco_relative_difference"))
-                        if _finite(row.get(column))]
+            relative = [f"{name} {round(100 * float(row[f'{flux}_relative_difference']), 1) + 0.0:+.1f} %"
+                        + _absolute_difference(row.get(f"{flux}_method_difference"))
+                        for name, flux in (("GPP", "gpp"), ("Reco", "reco"))
+                        if _finite(row.get(f"{flux}_relative_difference"))]
             facts.append(
                 f'<li><strong>Method agreement:</strong> <span data-summary="methods_agree" '
                 f'data-year="{_e(label)}" data-value="{int(agree)}">'
@@ -497,11 +497,21 @@ def _shared_e0_note(written: Written, first, last) -> str:
             f"{shared} of {int(inside.sum())} light-response windows")
 
 
+def _absolute_difference(difference) -> str:
+    """The method difference in g C m-2 beside its percentage: a dormant or short period's
+    sums near zero give large percentages of a few tenths of a gram (review46: "GPP +94.2 %"
+    for 0.4 against 1.2 g C m-2 read as a failed partitioning). Empty where the result
+    holds no such column."""
+    if not _finite(difference):
+        return ""
+    return f" ({round(float(difference), 1) + 0.0:+.1f} g C m-2)"
+
+
 def _reading_notes(combined_used: bool) -> str:
     notes = [
         "NEE &lt; 0 is net uptake by the ecosystem; GPP and Reco are positive. Budgets are in "
         "grams of carbon per square metre (g C m-2); t CO2 ha-1 = g C m-2 × "
-        f"{CO2_MOLAR_MASS}/{CARBON_MOLAR_MASS} × 0.01.",
+        f"{CO2_MOLAR_MASS}/{CARBON_MOLAR_MASS} × 0.01. {html.escape(NEE_SCOPE)}.",
         "The uncertainty covers the parts the run computed and wrote beside each total (the "
         "random error, gap filling with its bias on artificial gaps, the correlation of "
         "fills within a week and with the records they average and a change of state across "

@@ -389,8 +389,18 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
             warnings.append(f"u* scenario {name} not computed ({error}); the u* part of the "
                             "uncertainty uses the remaining runs")
         if name not in ("ustar_seasonal", "ustar_year"):     # runs stage_count cannot foresee
-            step(f"gap filling and partitioning ({name})")
+            step(_step_label(name))
     return outcomes
+
+
+def _step_label(name: str) -> str:
+    """The progress line's name of one run: "ustar_p16" read as code to a user (review46)."""
+    if name.startswith("ustar_p") and name[len("ustar_p"):].isdigit():
+        return ("gap filling and partitioning (u* threshold at its bootstrap percentile "
+                f"{name[len('ustar_p'):]})")
+    if name == "central":
+        return "gap filling and partitioning (central run)"
+    return f"gap filling and partitioning ({name})"
 
 
 def storage_release(outcomes, run_warnings, screened, rerun, ustar, threshold, is_night,

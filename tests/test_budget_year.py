@@ -201,6 +201,10 @@ def test_cli_net_uptake_of_a_partial_year_is_not_headed_per_year():
     assert "per year" not in text
     assert "Net uptake [t CO2 ha-1 over each budget year's records; positive = uptake]" in text
     assert "partial year, 3.6 months: not an annual total" in text
+    # the tonnes are NEE's: a harvest's carbon is not in them (review46, a maize field's
+    # 18 t CO2 ha-1 printed without a word on its harvest)
+    from fluxpart.manifest import NEE_SCOPE
+    assert f"  ({NEE_SCOPE})" in text and "harvest" in NEE_SCOPE
 
 def test_cli_uncertainty_parts_combine_into_the_printed_total(written_demo):
     """The printed parts of each flux's uncertainty combine in quadrature into its printed

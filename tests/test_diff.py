@@ -73,6 +73,20 @@ def test_another_seed_is_listed_once():
     assert ("seed", "seed", "0", "7") in _recorded_items(first, edited)
 
 
+def test_a_result_without_an_input_file_is_shown_as_none():
+    """A demo result records a demo seed and no input file; against a run of a site
+    config the diff showed "first []" and "demo record ... second null" (review46, the
+    demo against the example run): values a user reads as code. They are "none"."""
+    from fluxpart.diff import _recorded_items
+
+    demo = {"provenance": {"demo": {"seed": 0, "variant": "c3", "as_recorded": True}}}
+    run = {"provenance": {"input": {"path": "../tower.csv", "sha256": "ab" * 32}}}
+    items = {(section, name): (a, b) for section, name, a, b in _recorded_items(demo, run)}
+    assert items[("input", "input file SHA-256")] == ("none", "ab" * 32)
+    assert items[("input", "demo record")][1] == "none"
+    assert not any("[]" in a + b or "null" in a + b for a, b in items.values())
+
+
 def test_a_field_that_is_its_own_section_is_named_once():
     """The diff printed "warnings warnings ..." and "seed seed ..." (section and field of
     the same name) where other lines read "setting seed" (review25): such a field is named

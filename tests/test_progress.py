@@ -45,6 +45,22 @@ def test_writes_carriage_return_updates_when_forced():
     assert text.count("\n") == 1
 
 
+def test_a_shorter_line_covers_the_longer_one_before_it():
+    """The command line changes the label between steps; "\\r" alone left the end of a
+    longer line standing after a shorter one ("processing: budgets: 7/7 (100 %)nd
+    partitioning (ustar_p84): 6/7 ( 85 %)" on a terminal, review46). A shorter line is
+    padded with spaces to the longest written before it."""
+    stream = io.StringIO()
+    with Progress(2, "processing: a long stage name", stream=stream, enabled=True) as progress:
+        progress.advance()
+        progress.label = "processing: short"
+        progress.advance()
+    long_line = "\rprocessing: a long stage name: 1/2 ( 50 %)"
+    short_line = "\rprocessing: short: 2/2 (100 %)"
+    assert long_line in stream.getvalue()
+    assert short_line + " " * (len(long_line) - len(short_line)) + "\r" in stream.getvalue()
+
+
 def test_a_terminal_enables_it_by_default():
     """On a terminal it is on unless forced off."""
     terminal = _Terminal()
@@ -121,3 +137,13 @@ def test_process_reports_its_steps_through_logging(caplog):
     logged = [r.getMessage() for r in caplog.records if r.name.startswith("fluxpart")]
     assert labels and len(logged) >= len(labels)
     assert all(any(label in message for message in logged) for label in labels)
+
+
+def test_the_u_star_runs_are_named_in_words():
+    """The progress line named the u* scenario runs by their internal keys ("gap filling
+    and partitioning (ustar_p16)"; review46); it names the bootstrap percentile."""
+    from fluxpart.ustar_runs import _step_label
+
+    assert _step_label("ustar_p16") == ("gap filling and partitioning (u* threshold at its "
+                                       "bootstrap percentile 16)")
+    assert _step_label("central") == "gap filling and partitioning (central run)"

@@ -456,6 +456,19 @@ def test_page_order_is_caution_summary_warnings_figures_details_settings(folder)
     assert text.count("<figure") == len(FIGURES)
 
 
+def test_the_summary_says_what_nee_leaves_out(folder):
+    """The card gave a net uptake in t CO2 ha-1 with no word that a harvest, grazing or
+    manure moves carbon the tower does not see (review46: the maize example's 18 t CO2
+    ha-1, most of it carried off at harvest). The reading notes under the cards say so,
+    after the caution and before the warnings."""
+    from fluxpart.manifest import NEE_SCOPE
+
+    text = html.unescape(folder["text"])
+    assert "harvest" in NEE_SCOPE and "manure" in NEE_SCOPE
+    place = text.index(NEE_SCOPE)
+    assert text.index('id="caution-top"') < place < text.index('id="section-warnings"')
+
+
 @pytest.mark.parametrize("which", ["folder", "older"])
 def test_summary_numbers_equal_the_annual_table(which, request):
     """Summary spans carry the annual.parquet values exactly and print them rounded."""
@@ -847,7 +860,7 @@ def test_report_modules_import_no_pipeline_or_method_module():
     """The report reads the folder only: its modules import no pipeline or method module."""
     allowed = {"config", "constants", "errors", "figures", "manifest", "store", "units",
                "responses", "progress", "resultdir", "fingerprint", "uncertainty_parts",
-               "measured_months"}
+               "measured_months", "install_hints"}
     root = Path(fluxpart.__file__).parent
     for name in ("report.py", "figures.py"):
         tree = ast.parse((root / name).read_text(encoding="utf-8"))
@@ -960,7 +973,9 @@ def test_page_is_light(folder):
 def test_missing_matplotlib_names_the_report_extra(folder, monkeypatch, tmp_path):
     """Without matplotlib the report stops with one error naming the install command."""
     monkeypatch.setitem(sys.modules, "matplotlib", None)
-    with pytest.raises(FluxpartError, match=re.escape('pip install "fluxpart[report]"')):
+    from fluxpart.install_hints import install_command
+
+    with pytest.raises(FluxpartError, match=re.escape(install_command("report"))):
         build_report(folder["directory"], tmp_path / "never")
     assert not (tmp_path / "never").exists()
 
@@ -1307,6 +1322,15 @@ def test_a_budget_year_of_one_calendar_years_records_shows_that_years_range():
                         "below it were removed before gap filling."), years
 
 
+def _agreement_line(index, annual) -> str:
+    """The summary card's method-agreement item, as text, for a minimal written result."""
+    written = report.Written(manifest={}, tables={
+        "timeseries": pd.DataFrame({"nee_filled": 1.0}, index=index), "annual": annual})
+    summary, _ = report._summary_card(written)
+    return re.sub(r"<[^>]+>", "", re.search(r"Method agreement:</strong>(.*?)</li>",
+                                            summary).group(1))
+
+
 def test_a_method_difference_rounded_to_zero_shows_no_minus_sign():
     """A relative difference of -0.04 % rounds to 0.0 at one decimal, and IEEE 754 keeps
     the sign of a negative number rounded to zero (Python's format of -0.0 is '-0.0'): the
@@ -1318,12 +1342,25 @@ def test_a_method_difference_rounded_to_zero_shows_no_minus_sign():
                            "gpp_relative_difference": [-0.0004],
                            "reco_relative_difference": [-0.0123]},
                           index=pd.Index([2021], name="year"))
-    written = report.Written(manifest={}, tables={
-        "timeseries": pd.DataFrame({"nee_filled": 1.0}, index=index), "annual": annual})
-    summary, _ = report._summary_card(written)
-    line = re.sub(r"<[^>]+>", "", re.search(r"Method agreement:</strong>(.*?)</li>",
-                                              summary).group(1))
+    line = _agreement_line(index, annual)
     assert "GPP +0.0 %" in line and "Reco -1.2 %" in line and "-0.0" not in line
+
+
+def test_method_agreement_gives_the_difference_in_grams_beside_the_percentage():
+    """Seven winter weeks of a record (a partial budget year) summed GPP 0.41 and 1.15
+    g C m-2 by the two methods: "DISAGREE (GPP +94.2 %)" alone read as a failed
+    partitioning (review46). The card gives the difference in g C m-2 beside each
+    percentage, from the annual table's method_difference columns (1.15 - 0.41 = 0.74;
+    the relative one is 0.74 / 0.78 = 0.949, arithmetic)."""
+    index = pd.date_range("2023-01-01", "2023-02-19 23:30", freq="30min")
+    annual = pd.DataFrame({"nee": [11.2], "methods_agree": [False],
+                           "gpp_method_difference": [0.74], "gpp_relative_difference": [0.949],
+                           "reco_method_difference": [-0.44],
+                           "reco_relative_difference": [-0.036]},
+                          index=pd.Index([2023], name="year"))
+    line = _agreement_line(index, annual)
+    assert "DISAGREE" in line
+    assert "GPP +94.9 % (+0.7 g C m-2), Reco -3.6 % (-0.4 g C m-2)" in line
 
 
 def test_method_agreement_says_where_the_daytime_method_took_the_nighttime_e0():

@@ -191,7 +191,10 @@ def test_verify_names_the_record_and_column_of_an_edited_input(bundle, tmp_path)
     (difference,) = report.differences
     text = difference.describe()
     assert "1 value(s) in 1 record(s) differ" in text
-    assert "record starting 2021-01-11 09:00 'co2_exchange' (nee" in text
+    # the file's own stamp beside the result's interval start, so the edited line is found
+    # by the stamp it holds (review46): the file stamps interval ends, 202101110930
+    assert ("record starting 2021-01-11 09:00, stamped 2021-01-11 09:30 in the file (the "
+            "interval's end), 'co2_exchange' (nee") in text
     assert f"{float(old):.10g} then, {float(old) + 1.5:.10g} now" in text
 
 
@@ -207,9 +210,41 @@ def test_an_edited_site_flag_is_named_kept_or_rejected_not_by_its_internal_code(
     assert stamp == "202101110930" and float(old) == 0.0
     text = verify(root / "out").differences[0].describe()
     assert "1 value(s) in 1 record(s) differ" in text
-    assert ("record starting 2021-01-11 09:00 'qc_co2' (site flag: record kept or rejected "
+    assert ("record starting 2021-01-11 09:00, stamped 2021-01-11 09:30 in the file (the "
+            "interval's end), 'qc_co2' (site flag: record kept or rejected "
             "by [input] flag_accept): kept then, rejected now") in text
     assert "0 then" not in text and "1 now" not in text
+
+
+def test_the_files_own_stamp_is_named_in_its_clock():
+    """A record is named by its interval start in local standard time; the file may
+    stamp it at the interval's end and in civil time with daylight saving. Known truth:
+    Europe/Berlin keeps UTC+2 in May (CEST; IANA time zone database), so the half-hour
+    starting 13:00 standard time (UTC+1) ends 14:30 on the logger's clock; a file stamped
+    at interval starts in standard time, or with its own UTC offsets, needs no second
+    stamp."""
+    from types import SimpleNamespace
+
+    from fluxpart.input_changes import _file_stamp
+
+    half_hour = pd.Timedelta(minutes=30)
+    start = pd.Timestamp("2021-05-15 13:00")
+    civil = SimpleNamespace(time_marks="end", time_zone="Europe/Berlin",
+                            time_format="%d.%m.%Y %H:%M", site=SimpleNamespace(utc_offset=1.0))
+    assert _file_stamp(start, civil, half_hour) == (
+        ", stamped 2021-05-15 14:30 in the file (the interval's end, civil time of "
+        "Europe/Berlin),")
+    winter = pd.Timestamp("2021-01-15 13:00")            # CET = standard time
+    assert "stamped 2021-01-15 13:30 in the file" in _file_stamp(winter, civil, half_hour)
+    plain = SimpleNamespace(time_marks="start", time_zone=None, time_format="%Y%m%d%H%M",
+                            site=SimpleNamespace(utc_offset=1.0))
+    assert _file_stamp(start, plain, half_hour) == ""
+    middle = SimpleNamespace(**{**vars(plain), "time_marks": "middle"})
+    assert _file_stamp(start, middle, half_hour) == (
+        ", stamped 2021-05-15 13:15 in the file (the interval's middle),")
+    offsets = SimpleNamespace(**{**vars(plain), "time_marks": "end",
+                                 "time_format": "%Y-%m-%dT%H:%M%z"})
+    assert _file_stamp(start, offsets, half_hour) == ""
 
 
 def test_verify_names_records_added_and_removed_from_an_input(bundle, tmp_path):
