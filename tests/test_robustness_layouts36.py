@@ -1,0 +1,137 @@
+"""Layouts of the layouts36 round: CR-only files with skipped lines, a second table below
+the first, a time field of minutes since midnight.
+
+Outside facts, each named beside its check: a line may end in CR alone (classic Mac OS
+and some loggers' exports; Python's ``str.splitlines`` and the csv module count it as a
+line end, common practice); Excel reads a first line "sep=;" as the file's delimiter
+(Microsoft documentation (m)); a day holds 1,440 minutes (SI). Everything else is
+invented known truth: the records as written.
+"""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.errors import InputFileError, TimestampError
+from fluxpart.io import read_table
+from fluxpart.site import Site
+
+SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
+MAPPING = {"nee": "co2", "rg": "sw", "tair": "t_air", "vpd": "vpd", "ustar": "us"}
+UNITS_LINE = "-,umol m-2 s-1,W m-2,degC,kPa,m s-1"
+
+
+def _records(count=48 * 10):
+    """Invented half-hourly records of 1-10 June 2021 (end stamps, UTC+1)."""
+    ends = pd.date_range("2021-06-01 00:30", periods=count, freq="30min")
+    day = np.sin((ends.hour + ends.minute / 60 - 6) / 12 * np.pi)
+    rng = np.random.default_rng(36)
+    return pd.DataFrame({
+        "stamp": ends.strftime("%Y%m%d%H%M"),
+        "co2": (3 - 12 * np.clip(day, 0, None) + rng.normal(0, 1, count)).round(3),
+        "sw": (np.clip(800 * day, 0, None) + 1.0).round(1),
+        "t_air": (15 + 6 * day).round(2), "vpd": (0.8 + 0.6 * np.clip(day, 0, None)).round(3),
+        "us": (0.3 + 0.1 * rng.random(count)).round(3)}), ends
+
+
+def _read(path, **options):
+    settings = {"time_column": "stamp", "time_format": "%Y%m%d%H%M", "time_marks": "end"}
+    settings.update(options)
+    return read_table(path, columns=MAPPING, units={"vpd": "kPa"}, site=SITE, **settings)
+
+
+def _assert_records(read, frame, ends):
+    starts = pd.DatetimeIndex(ends - pd.Timedelta("30min"), name="time")
+    assert read.index.equals(starts.as_unit(read.index.unit))
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy())
+    np.testing.assert_array_equal(read["ustar"].to_numpy(), frame["us"].to_numpy())
+
+
+@pytest.mark.parametrize("above, rows_before, rows_after", [
+    ("", 0, 1),                                  # a units line under the header
+    ("Quillmoor logger 2\r", 1, 0),              # a title line
+    ("Quillmoor logger 2\r\r", 2, 1),            # a title, a blank line and a units line
+])
+def test_cr_only_files_with_skipped_lines_read_every_record(tmp_path, above, rows_before,
+                                                            rows_after):
+    """Before: pandas read an emptied line between CR-only line ends as part of the next
+    line end, so the first record under a units line was dropped without a word (17,519
+    of 17,520 records of a year), a title line made a record the header, and a title,
+    a blank and a units line crashed with IndexError."""
+    frame, ends = _records()
+    lines = frame.to_csv(index=False, lineterminator="\r").split("\r", 1)
+    units = UNITS_LINE + "\r" if rows_after else ""
+    path = tmp_path / "t.csv"
+    path.write_bytes((above + lines[0] + "\r" + units + lines[1]).encode())
+    read, report = _read(path, rows_before_header=rows_before, rows_after_header=rows_after)
+    _assert_records(read, frame, ends)
+    assert report.records_read == len(frame)
+
+
+def test_a_cr_only_file_under_a_spreadsheet_delimiter_note_is_read(tmp_path):
+    """Before: the note "sep=;" of a CR-only file was not found (only LF ended its line)
+    and the file was refused with "set rows_before_header = 1"; an LF file was read."""
+    frame, ends = _records()
+    path = tmp_path / "t.csv"
+    path.write_bytes(("sep=;\r" + frame.to_csv(index=False, sep=";", lineterminator="\r"))
+                     .encode())
+    read, _ = _read(path, delimiter=";")
+    _assert_records(read, frame, ends)
+
+
+def test_a_cr_only_line_stating_start_stamps_is_judged(tmp_path):
+    """Before: under two CR-only lines above the header a record was taken for the header
+    ("no such column"); now the line stating start stamps is judged as in an LF file,
+    and time_marks = "end" refused naming both readings."""
+    frame, _ = _records()
+    path = tmp_path / "t.csv"
+    path.write_bytes(("Quillmoor tower\rTime stamp refers to the beginning of the averaging "
+                      "period\r" + frame.to_csv(index=False, lineterminator="\r")).encode())
+    with pytest.raises(TimestampError, match=r"line 2 .*start.*time_marks = \"end\""):
+        _read(path, rows_before_header=2)
+
+
+def test_a_second_table_below_the_first_is_named_by_its_header(tmp_path):
+    """Before: a table of rain and soil heat flux written under the flux table was named
+    "a logger program that removed a column and wrote no new header line? ... give the
+    part from there its own header line", which it has."""
+    frame, _ = _records()
+    other = pd.DataFrame({"stamp": frame["stamp"], "rain_mm": 0.0, "soil_heat": 12.5})
+    path = tmp_path / "t.csv"
+    path.write_text(frame.to_csv(index=False) + "\n" + other.to_csv(index=False))
+    with pytest.raises(InputFileError, match=r"line 483 \('stamp,rain_mm,soil_heat'\) is a "
+                                             r"header "
+                                             r"line of 3 names where the header has 6.*"
+                                             r"second table"):
+        _read(path)
+
+
+def test_a_time_field_of_minutes_since_midnight_is_named(tmp_path):
+    """Before: "2021-06-01 60" under "%Y-%m-%d %M" was refused naming no cause; a day
+    holds 1,440 minutes (SI), and 60 to 99 past a hundred is no hhmm clock."""
+    frame, ends = _records()
+    minutes = ends.hour * 60 + ends.minute
+    frame.insert(1, "date", (ends - pd.Timedelta("1s")).strftime("%Y-%m-%d"))
+    frame["minute"] = np.where(minutes == 0, 1440, minutes)
+    path = tmp_path / "t.csv"
+    path.write_text(frame.drop(columns="stamp").to_csv(index=False))
+    with pytest.raises(TimestampError, match=r"counts the minutes of the day \('60' is "
+                                             r"01:00\)"):
+        _read(path, time_column=["date", "minute"], time_format="%Y-%m-%d %M")
+
+
+@pytest.mark.parametrize("hhmm", ["{:d}", "{:04d}"])
+def test_year_day_of_year_and_hhmm_with_2400_read_record_for_record(tmp_path, hhmm):
+    """Kept: integer hhmm (unpadded 30, 100, ... or padded 0030) with midnight as 2400 of
+    the day it ends, the day of year counted from 001 (ISO 8601 ordinal dates)."""
+    frame, ends = _records()
+    clock = ends.hour * 100 + ends.minute
+    day = ends - pd.Timedelta("1s")
+    table = frame.drop(columns="stamp")
+    table.insert(0, "hhmm", [hhmm.format(v) for v in np.where(clock == 0, 2400, clock)])
+    table.insert(0, "doy", day.day_of_year)
+    table.insert(0, "year", day.year)
+    path = tmp_path / "t.csv"
+    path.write_text(table.to_csv(index=False))
+    read, _ = _read(path, time_column=["year", "doy", "hhmm"], time_format="%Y %j %H%M")
+    _assert_records(read, frame, ends)
