@@ -288,6 +288,29 @@ _ENDING_AT = _LazyPattern(
     r"|\b(?:interval|period)-(ending|beginning|starting)\b(?![^;]*\d{4})"
     r"|\b(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?)\b[^.;]{0,30}?"
     r"\b(mid)[\s-]*(?:interval|period)\b")
+#: The place phrased around the stamps rather than named beside "interval" (layouts36:
+#: each left unread, so that a file stating start stamps was read an interval late under
+#: time_marks = "end"): stamps "labelled with the start time", "stamped at the end"; the
+#: averages "ending at the time shown", the 30 minutes "preceding the time stamp" or
+#: "after the timestamp" (a duration before the word, so that "values before the
+#: timestamp change" states nothing); the "left edge" of the averaging window; the
+#: period that "closes" at the stamp (a word for the stamps before it); stamps "centred on the averaging period" or at
+#: "interval midpoints". No date may follow ("period ends 2021-12-31" dates an event).
+_PHRASED_PLACE = _LazyPattern(
+    r"(?:\b(?:labell?ed|stamped|marked|dated|indexed)\s+(?:with|at|by)\s+(?:the\s+|its\s+)?"
+    r"(start|beginning|begin|end|middle|centre|center|midpoint)\b"
+    r"|\b(ending|beginning|starting|centred|centered)\s+(?:at|on)\s+(?:the\s+)?"
+    r"(?:time\s+(?:shown|given|written|listed)|time\s*stamps?|timestamps?|stamps?)\b"
+    r"|\b(?:min(?:ute)?s?|hours?|h|interval|period)\s+(?:immediately\s+)?"
+    r"(preceding|following|before|after|prior\s+to|up\s+to)\s+(?:the\s+|each\s+|its\s+)?"
+    r"(?:time\s*stamps?|timestamps?|stamps?|time\s+(?:shown|given|label))\b"
+    r"|\b(left|right)[\s-]+(?:edge|side|bound)\s+of\s+(?:the\s+|each\s+)?"
+    r"(?:averaging\s+)?(?:window|interval|period)\b"
+    r"|\b(?:time\s*stamps?|timestamps?|stamps?)\b[^.;]{0,40}?\b(?:interval|period|window)"
+    r"\s+(closes|ends|opens|begins|starts)\b"
+    r"|\b(?:time\s*stamps?|timestamps?|stamps?)\b[^.;]{0,20}?\b(centred|centered)\s+(?:on|in)\b"
+    r"|\b(?:interval|period)\s+(midpoints?|mid-points?|centres|centers)\b)"
+    r"(?![^;]*\d{4})")
 _OTHER_PLACE_WORDS = {
     "début": "start", "debut": "start", "inicio": "start", "comienzo": "start",
     "principio": "start", "inizio": "start", "fin": "end", "final": "end", "fine": "end",
@@ -298,6 +321,12 @@ _OTHER_PLACE_WORDS = {
     "vorhergehenden": "end", "vorherigen": "end", "letzten": "end",
     "beginning": "start", "starting": "start", "begin": "start", "start": "start",
     "ending": "end", "end": "end", "mid": "middle",
+    # phrased around the stamps (_PHRASED_PLACE, layouts36)
+    "middle": "middle", "center": "middle", "midpoint": "middle", "centred": "middle",
+    "centered": "middle", "before": "end", "prior to": "end", "up to": "end",
+    "after": "start", "left": "start", "right": "end", "closes": "end", "ends": "end",
+    "opens": "start", "begins": "start", "starts": "start", "midpoints": "middle",
+    "mid-points": "middle", "mid-point": "middle", "centres": "middle", "centers": "middle",
 }
 #: A place word within a few words after a word for the stamps, in one clause
 #: ("Timestamp at start of each 30-min average", "Time label: interval start")
@@ -463,10 +492,10 @@ def stated_place(text: str, cell: bool = False) -> str | None:
     found |= {places[m.group(1) or m.group(2)] for m in _GERMAN_PLACE.finditer(lowered)}
     for stamp in _STAMP_PLACE.finditer(lowered):          # "Timestamp at start of ..."
         found.add(places.get(stamp.group(1), stamp.group(1)))
-    for pattern in (_ROMANCE_PLACE, _RELATIVE_PLACE, _ENDING_AT):   # since layouts27
-        for m in pattern.finditer(lowered):
-            word = next(group for group in m.groups() if group)
-            found.add(_OTHER_PLACE_WORDS[word])
+    for pattern in (_ROMANCE_PLACE, _RELATIVE_PLACE, _ENDING_AT, _PHRASED_PLACE):
+        for m in pattern.finditer(lowered):                 # since layouts27 (36)
+            word = re.sub(r"\s+", " ", next(group for group in m.groups() if group))
+            found.add(_OTHER_PLACE_WORDS.get(word, word))
     if cell:                                              # a units cell "interval begin"
         for m in _CELL_PLACE.finditer(spaced):
             word = m.group(1) or m.group(2) or m.group(3)
@@ -496,6 +525,16 @@ _LINE_PLACE = _LazyPattern(
     r"(?:\s+(?:time|times|time\s*stamps?|timestamps?|stamps?))?")
 
 
+#: A line that is a key of the stamps' place and its value, nothing else:
+#: "timestamp_position = start", "Stamp position: end", "TIMESTAMP convention: interval
+#: ending" (layouts36: unread before)
+_KEY_PLACE = _LazyPattern(
+    r"(?:time[\s_-]*stamps?|timestamps?|stamps?|time[\s_-]*labels?)"
+    r"(?:[\s_-]*(?:position|place|convention|reference|mark|location|alignment))?"
+    r"\s*[:=]\s*(?:(?:averaging[\s_-]+)?(?:interval|period)[\s_-]+)?"
+    r"(start|beginning|begin|end|ending|starting|middle|centre|center|midpoint)")
+
+
 def _line_place(spaced: str, places: dict) -> set:
     """The place a line above the header states as "period start" or "interval end".
 
@@ -513,10 +552,11 @@ def _line_place(spaced: str, places: dict) -> set:
     """
     # comment marks, quotes and a spreadsheet's empty cells ("Period start,,,,") aside
     line = spaced.strip(" \t#;,/*!%'\"").rstrip(".").strip(" \t#;,/*!%'\"")
-    match = _LINE_PLACE.fullmatch(line)
+    match = _LINE_PLACE.fullmatch(line) or _KEY_PLACE.fullmatch(line)
     if match is None:
         return set()
-    return {places.get(match.group(1), match.group(1))}
+    word = match.group(1)
+    return {places.get(word, _OTHER_PLACE_WORDS.get(word, word))}
 
 
 def stated_offset(text: str) -> float | None:

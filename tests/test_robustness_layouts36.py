@@ -4,8 +4,10 @@ the first, a time field of minutes since midnight.
 Outside facts, each named beside its check: a line may end in CR alone (classic Mac OS
 and some loggers' exports; Python's ``str.splitlines`` and the csv module count it as a
 line end, common practice); Excel reads a first line "sep=;" as the file's delimiter
-(Microsoft documentation (m)); a day holds 1,440 minutes (SI). Everything else is
-invented known truth: the records as written.
+(Microsoft documentation (m)); a day holds 1,440 minutes (SI). A stamp that "starts" its interval heads the
+averages over the minutes after it, one that "ends" it those before it (ISO 8601 time
+intervals (m); the hour-ending convention of networks, common practice). Everything else
+is invented known truth: the records as written.
 """
 
 import numpy as np
@@ -15,6 +17,7 @@ import pytest
 from fluxpart.errors import InputFileError, TimestampError
 from fluxpart.io import read_table
 from fluxpart.site import Site
+from fluxpart.stamp_places import stated_place
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
 MAPPING = {"nee": "co2", "rg": "sw", "tair": "t_air", "vpd": "vpd", "ustar": "us"}
@@ -134,4 +137,45 @@ def test_year_day_of_year_and_hhmm_with_2400_read_record_for_record(tmp_path, hh
     path = tmp_path / "t.csv"
     path.write_text(table.to_csv(index=False))
     read, _ = _read(path, time_column=["year", "doy", "hhmm"], time_format="%Y %j %H%M")
+    _assert_records(read, frame, ends)
+
+
+@pytest.mark.parametrize("line, place", [
+    # unread before layouts36, so that a wrong time_marks read the file an interval off
+    ("Averages are labelled with the start time of the interval", "start"),
+    ("Each record is stamped at the start of its 30 min average", "start"),
+    ("Data are 30-min averages ending at the time shown", "end"),
+    ("Values are means of the 30 minutes preceding the time stamp", "end"),
+    ("Values are means of the 30 minutes following the time stamp", "start"),
+    ("Values refer to the half hour before the timestamp", "end"),
+    ("Values refer to the half hour after the timestamp", "start"),
+    ("time: left edge of averaging window", "start"),
+    ("time: right edge of averaging window", "end"),
+    ("Stamp gives the time at which the averaging period closes", "end"),
+    ("The timestamp is centred on the averaging period", "middle"),
+    ("Timestamps are interval midpoints", "middle"),
+    ("timestamp_position = start", "start"), ("stamp_position: end", "end"),
+    ("TIMESTAMP convention: interval ending", "end"),
+    # still no statement: a change dated, an event's period, a note in passing
+    ("Values before the timestamp change in May were corrected", None),
+    ("Logging period ends 2021-12-31", None), ("Calibration period end", None),
+    ("Time series: the measurement period starts in June", None),
+    ("Records dated at the end 2021-06-30 were removed", None),
+])
+def test_places_phrased_around_the_stamps_are_read(line, place):
+    assert stated_place(line) == place
+
+
+def test_start_stamps_stated_in_other_words_refuse_end_marks(tmp_path):
+    """Before: "Averages are labelled with the start time of the interval" was not read,
+    and start stamps under time_marks = "end" were read 30 minutes late without a word."""
+    frame, ends = _records()
+    frame["stamp"] = (ends - pd.Timedelta("30min")).strftime("%Y%m%d%H%M")
+    path = tmp_path / "t.csv"
+    path.write_text("Quillmoor tower\nAverages are labelled with the start time of the "
+                    "interval\n" + frame.to_csv(index=False))
+    with pytest.raises(TimestampError, match=r"line 2 .*states stamps at the interval's "
+                                             r"start, but time_marks = \"end\""):
+        _read(path, rows_before_header=2)
+    read, _ = _read(path, rows_before_header=2, time_marks="start")
     _assert_records(read, frame, ends)
