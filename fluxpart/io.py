@@ -2345,7 +2345,8 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
     try:
         text = data.decode(encoding)
     except UnicodeDecodeError as error:
-        line = data[:error.start].count(b"\n") + 1
+        # CR alone ends a line too (layouts36: a CR-only file's byte was "on line 1")
+        line = len(re.findall(rb"\r\n|\r|\n", data[:error.start])) + 1
         raise InputFileError(
             f"input file {str(path)!r} is not {encoding} text (byte 0x{data[error.start]:02x} "
             f"on line {line}); set [input] encoding = \"latin-1\" (or \"cp1252\", or "

@@ -179,3 +179,15 @@ def test_start_stamps_stated_in_other_words_refuse_end_marks(tmp_path):
         _read(path, rows_before_header=2)
     read, _ = _read(path, rows_before_header=2, time_marks="start")
     _assert_records(read, frame, ends)
+
+
+def test_a_byte_of_another_encoding_in_a_cr_only_file_is_named_on_its_line(tmp_path):
+    """Before: 'µ' of a Mac OS Roman units line (byte 0xB5; Apple's Mac OS Roman table
+    (m)) under CR-only line ends was named "on line 1", the header's line."""
+    frame, _ = _records()
+    lines = frame.to_csv(index=False, lineterminator="\r").split("\r", 1)
+    path = tmp_path / "t.csv"
+    path.write_bytes((lines[0] + "\r-,\u00b5mol m-2 s-1,W m-2,C,kPa,m s-1\r" + lines[1])
+                     .encode("mac_roman"))
+    with pytest.raises(InputFileError, match=r"not utf-8 text \(byte 0xb5 on line 2\)"):
+        _read(path, rows_after_header=1)
