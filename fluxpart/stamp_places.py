@@ -358,6 +358,9 @@ _ZONE_KEY = _LazyPattern(r"(?:time[\s_-]*zone(?:[\s_-]*offset)?|zeitzone|\btz\b|
                          r"|zona\s+horaria|huso\s+horario|fuso\s+orario|fuso\s+hor[aá]rio"
                          r"|tijd\s*s?zone|strefa\s+czasowa|tidszon|tidssone"
                          r"|(?P<unit_key>hours?|minutes?)\s+(?:from|to|relative\s+to)\s+(?:utc|gmt))"
+                         # "UTC offset of the stamps: +2 h" (layouts36)
+                         r"(?:\s+of\s+(?:the\s+)?(?:time\s*stamps?|timestamps?|stamps?|times|clock"
+                         r"|logger|data))?"
                          # "utc_offset_minutes = 120" (layouts35)
                          r"(?:[\s_-]*(?P<unit_word>hours|hrs|minutes|mins)\b)?"
                          r"(?:\s*[\(\[](?:utc|gmt)[\s_-]*offset[\)\]])?"   # "Time zone (UTC offset)"
@@ -367,6 +370,10 @@ _ZONE_KEY = _LazyPattern(r"(?:time[\s_-]*zone(?:[\s_-]*offset)?|zeitzone|\btz\b|
                          r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*(?P<value>[^,;]*)")
 #: "1 h ahead of UTC", "5 hours behind GMT": an offset written in words (layouts35: such a
 #: value was read as UTC, the clock it is counted from)
+#: "Stamps are 2 h ahead of UTC": a word for the stamps or the clock, then an offset in
+#: words (layouts36: read only after a zone key before)
+_STAMPS_AHEAD = _LazyPattern(r"\b(?:time\s*stamps?|timestamps?|stamps?|times|clock|logger)\b"
+                             r"[^.;0-9]{0,20}?(?=\d)")
 _RELATIVE_OFFSET = _LazyPattern(r"(\d{1,2}(?:\.\d+)?)\s*(h|hrs?|hours?|min|mins|minutes?)?\s+"
                                 r"(ahead\s+of|behind|east\s+of|west\s+of)\s+(?:utc|gmt)")
 #: "Logger clock offset: UTC+02:00", "clock_offset = +0200": a clock's offset key, read
@@ -378,7 +385,8 @@ _COUNTED_FROM = _LazyPattern(r"\d\s*(?:h|hrs?|hours?|min|mins|minutes?)?\s+(?:fr
 _ZONE_FORM_OFFSET = _LazyPattern(r"^([+-])(\d{2}):?(00|30|45)$")
 #: "Logger clock set to UTC+2" (not "synchronised to", which may name the clock's source
 #: only)
-_CLOCK_SET = _LazyPattern(r"\bclock\s+(?:is\s+)?(?:set|kept|running)\s+(?:to|on|in)\s+"
+_CLOCK_SET = _LazyPattern(r"\b(?:clock|logger|datalogger)\s+(?:is\s+)?(?:set|kept|running|runs)"
+                          r"\s+(?:to|on|in)\s+"
                           r"(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
 #: "Time offset: +1 h" (a key read only with a unit or a sign and "UTC": "time offset:
 #: 0.2" may be a sensor's lag)
@@ -393,13 +401,15 @@ _NUMBER_UNIT = _LazyPattern(r"([+-]?\d{1,3}(?:\.\d+)?)\s*(h|hrs?|hours?|min|mins
 #: Time (UT, French TU), within a second of UTC (m), with an optional ISO 8601 offset
 _CLOCK_VALUE = _LazyPattern(r"(?:utc|gmt|gps|z|zulu|ut|tu|universal)(?:\s*time)?"
                             r"(?:\s*\((?:utc|gmt|gps)\))?"
-                            r"(?P<offset>\s*[+-]\s*\d{1,2}(?::?\d{2})?)?")
+                            r"(?P<offset>\s*[+-]\s*\d{1,2}(?::?\d{2})?)?"
+                            r"(?:\s*(?:h|hrs?|hours?)\b)?")     # "UTC + 2 h" (layouts36)
 #: "Data logger time: UTC", "Time: UTC+00:00", "Standard time: UTC": a key ending in
 #: "time" followed by a clock and nothing else (since layouts27; a date or anything else
 #: after the key states nothing: "Export time: 2021-06-01 12:00 UTC")
 _TIME_KEY = _LazyPattern(r"\btime\s*[\]\)]?\s*[:=]\s*\(?\s*(?P<value>[^,;]*)")
 _IN_UTC = _LazyPattern(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|zeitangaben"
                        r"|data|values|records|readings"   # "All values in UTC+2" (layouts35)
+                       r"|recorded|logged"                # "Recorded in UTC+2" (layouts36)
                        r"|zeiten|uhrzeiten|horodatage|heures?)\b[^.;]{0,24}?"
                        r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?"
                        r"(?![a-z0-9]|-[a-z])")     # not "data in GMT-based format"
@@ -414,7 +424,7 @@ _EVENT_TIME = _LazyPattern(r"\bof\s+(?:the\s+)?(?:file\s+)?(?:export|creation|do
                            r"|processing|writing|upload)")
 #: "Time reference: UTC", "Timebase: UTC", "Time standard = GMT" (a clock or zone follows;
 #: bare numbers are not read, since "time base: 10" may be a sampling rate)
-_REFERENCE_KEY = _LazyPattern(r"(?:\btime[\s_-]*(?:reference|base|standard)|\btimebase"
+_REFERENCE_KEY = _LazyPattern(r"(?:\btime[\s_-]*(?:reference|base|basis|standard)|\btimebase"
                               r"|\bzeitbasis|\bzeitreferenz)\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
 #: Zones written out in words, as logger software, Windows (its zone identifiers, "W.
 #: Europe Standard Time" for Berlin) and data documentation write them [h]; the longer
@@ -643,6 +653,9 @@ def stated_offset(text: str) -> float | None:
             offset = zone_offset(written)         # "Logger time: CET", "Time: Europe/Helsinki"
         if offset is not None:
             return offset
+    ahead = _STAMPS_AHEAD.search(lowered)
+    if ahead and _RELATIVE_OFFSET.match(lowered, ahead.end()):
+        return _value_clock(lowered[ahead.end():])     # "Stamps are 2 h ahead of UTC"
     spelled = spelled_zone_offset(lowered)        # "All times in Coordinated Universal Time"
     if spelled is not None and _ABOUT_STAMPS.search(_SPELLED.sub(" ", lowered)):
         return spelled                            # not a title that names a zone in passing

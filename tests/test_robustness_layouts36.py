@@ -17,7 +17,7 @@ import pytest
 from fluxpart.errors import InputFileError, TimestampError
 from fluxpart.io import read_table
 from fluxpart.site import Site
-from fluxpart.stamp_places import stated_place
+from fluxpart.stamp_places import stated_offset, stated_place
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
 MAPPING = {"nee": "co2", "rg": "sw", "tair": "t_air", "vpd": "vpd", "ustar": "us"}
@@ -191,3 +191,18 @@ def test_a_byte_of_another_encoding_in_a_cr_only_file_is_named_on_its_line(tmp_p
                      .encode("mac_roman"))
     with pytest.raises(InputFileError, match=r"not utf-8 text \(byte 0xb5 on line 2\)"):
         _read(path, rows_after_header=1)
+
+
+@pytest.mark.parametrize("line, offset", [
+    # unread before layouts36: the reader took the site's clock (ISO 8601 offsets, and
+    # "ahead of UTC" east of Greenwich (m))
+    ("Logger time = UTC + 2 h", 2.0), ("Recorded in UTC+2", 2.0), ("Time basis: UTC", 0.0),
+    ("Logger runs on UTC", 0.0), ("Logger set to UTC+3", 3.0),
+    ("UTC offset of the stamps: +2 h", 2.0), ("Stamps are 2 h ahead of UTC", 2.0),
+    # still none: the clock's source only, a schedule, a count with no direction
+    ("Logger clock synchronised to UTC", None), ("Logger set to record every 30 min", None),
+    ("Logger runs on battery", None), ("Times are 2 h from UTC", None),
+    ("Logger 3 h ahead of schedule", None),
+])
+def test_clocks_phrased_otherwise_are_read(line, offset):
+    assert stated_offset(line) == offset
