@@ -13,6 +13,7 @@ is invented known truth: the records as written.
 import numpy as np
 import pandas as pd
 import pytest
+from test_robustness_layouts35 import _records  # invented records of 1-10 June 2021
 
 from fluxpart.errors import InputFileError, TimestampError
 from fluxpart.io import read_table
@@ -22,19 +23,6 @@ from fluxpart.stamp_places import stated_offset, stated_place
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
 MAPPING = {"nee": "co2", "rg": "sw", "tair": "t_air", "vpd": "vpd", "ustar": "us"}
 UNITS_LINE = "-,umol m-2 s-1,W m-2,degC,kPa,m s-1"
-
-
-def _records(count=48 * 10):
-    """Invented half-hourly records of 1-10 June 2021 (end stamps, UTC+1)."""
-    ends = pd.date_range("2021-06-01 00:30", periods=count, freq="30min")
-    day = np.sin((ends.hour + ends.minute / 60 - 6) / 12 * np.pi)
-    rng = np.random.default_rng(36)
-    return pd.DataFrame({
-        "stamp": ends.strftime("%Y%m%d%H%M"),
-        "co2": (3 - 12 * np.clip(day, 0, None) + rng.normal(0, 1, count)).round(3),
-        "sw": (np.clip(800 * day, 0, None) + 1.0).round(1),
-        "t_air": (15 + 6 * day).round(2), "vpd": (0.8 + 0.6 * np.clip(day, 0, None)).round(3),
-        "us": (0.3 + 0.1 * rng.random(count)).round(3)}), ends
 
 
 def _read(path, **options):
