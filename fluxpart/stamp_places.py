@@ -294,7 +294,9 @@ _ENDING_AT = _LazyPattern(
 #: averages "ending at the time shown", the 30 minutes "preceding the time stamp" or
 #: "after the timestamp" (a duration before the word, so that "values before the
 #: timestamp change" states nothing); the "left edge" of the averaging window; the
-#: period that "closes" at the stamp (a word for the stamps before it); stamps "centred on the averaging period" or at
+#: period that "closes" (a word for the stamps before it), the time "at which the period
+#: ends" ("interval starts" alone may be a plural: "stamps shifted to interval
+#: starts" tells a conversion); stamps "centred on the averaging period" or at
 #: "interval midpoints". No date may follow ("period ends 2021-12-31" dates an event).
 _PHRASED_PLACE = _LazyPattern(
     r"(?:\b(?:labell?ed|stamped|marked|dated|indexed)\s+(?:with|at|by)\s+(?:the\s+|its\s+)?"
@@ -307,7 +309,9 @@ _PHRASED_PLACE = _LazyPattern(
     r"|\b(left|right)[\s-]+(?:edge|side|bound)\s+of\s+(?:the\s+|each\s+)?"
     r"(?:averaging\s+)?(?:window|interval|period)\b"
     r"|\b(?:time\s*stamps?|timestamps?|stamps?)\b[^.;]{0,40}?\b(?:interval|period|window)"
-    r"\s+(closes|ends|opens|begins|starts)\b"
+    r"\s+(closes|opens)\b"
+    r"|\b(?:at\s+which|when)\s+(?:the|each|its)\s+(?:averaging\s+)?"
+    r"(?:interval|period|window)\s+(ends|starts|closes|opens|begins)\b"
     r"|\b(?:time\s*stamps?|timestamps?|stamps?)\b[^.;]{0,20}?\b(centred|centered)\s+(?:on|in)\b"
     r"|\b(?:interval|period)\s+(midpoints?|mid-points?|centres|centers)\b)"
     r"(?![^;]*\d{4})")

@@ -149,6 +149,8 @@ def test_year_day_of_year_and_hhmm_with_2400_read_record_for_record(tmp_path, hh
     ("Logging period ends 2021-12-31", None), ("Calibration period end", None),
     ("Time series: the measurement period starts in June", None),
     ("Records dated at the end 2021-06-30 were removed", None),
+    ("Stamps shifted by -30 min to interval starts", None),    # a conversion told
+    ("Stamp gives the time at which the averaging period ends", "end"),
 ])
 def test_places_phrased_around_the_stamps_are_read(line, place):
     assert stated_place(line) == place
