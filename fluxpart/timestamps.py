@@ -1367,7 +1367,10 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             lead = int(np.argmin(failed)) if not failed.all() else len(failed)
             skip = rows_after_header + (lead if lead <= 4 else 1)
             hint = (f"; if the file has {'a units line' if skip == 1 else f'{skip} lines'} "
-                    f"{'' if skip == 1 else '(units, processing) '}under the header, set "
+                    # a blank line among them: CR CR LF line ends (a CR LF file converted
+                    # again) put one under every line (layouts36)
+                    f"{'' if skip == 1 else '(units, processing or blank lines) '}under the "
+                    "header, set "
                     f"[input] rows_after_header = {skip}")
         elif _NULL_STAMP.fullmatch(text.iloc[first]) and not failed.all():
             # a database's or a statistics program's word for no value in the time column

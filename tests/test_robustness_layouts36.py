@@ -196,3 +196,19 @@ def test_a_byte_of_another_encoding_in_a_cr_only_file_is_named_on_its_line(tmp_p
 ])
 def test_clocks_phrased_otherwise_are_read(line, offset):
     assert stated_offset(line) == offset
+
+
+def test_cr_cr_lf_line_ends_under_a_units_line_name_the_blank_lines(tmp_path):
+    """Before: "if the file has 2 lines (units, processing) under the header", where one
+    of the two is the blank line that CR CR LF (a CR LF file converted again) makes;
+    the fix it gives reads the file record for record."""
+    frame, ends = _records()
+    lines = frame.to_csv(index=False, lineterminator="\r\r\n").split("\r\r\n", 1)
+    path = tmp_path / "t.csv"
+    path.write_bytes((lines[0] + "\r\r\n" + UNITS_LINE + "\r\r\n" + lines[1]).encode())
+    with pytest.raises(TimestampError, match=r"2 lines \(units, processing or blank lines\) "
+                                             r"under the header, set \[input\] "
+                                             r"rows_after_header = 2"):
+        _read(path, rows_after_header=1)
+    read, _ = _read(path, rows_after_header=2)
+    _assert_records(read, frame, ends)
