@@ -59,6 +59,7 @@ from ._validate import (
     printable_line,
     read_site_config_toml,
     refuse_binary,
+    single_zip_member,
     unicode_form_hint,
 )
 from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
@@ -2286,9 +2287,13 @@ def _decompressed(data: bytes, path: Path) -> bytes:
     """The bytes of a gzip-, bzip2- or xz-compressed file decompressed, else `data`.
 
     A compressed text table is the table: read it as the file it holds (by its leading
-    bytes, whatever its name), its hash still the compressed file's. A tar archive
-    inside (``.tar.gz``: several files) is refused by name, as are zip archives.
+    bytes, whatever its name), its hash still the compressed file's; so is a zip
+    archive of one file (:func:`fluxpart._validate.single_zip_member`, layouts36). A tar
+    archive inside (``.tar.gz``: several files) is refused by name, as are zip archives
+    of several files.
     """
+    if data.startswith(b"PK\x03\x04"):
+        data = single_zip_member(data) or data
     for magic, name, module in _COMPRESSED:
         if data.startswith(magic) and (name != "bzip2" or data[4:10] == b"1AY&SY"):
             try:

@@ -212,3 +212,26 @@ def test_cr_cr_lf_line_ends_under_a_units_line_name_the_blank_lines(tmp_path):
         _read(path, rows_after_header=1)
     read, _ = _read(path, rows_after_header=2)
     _assert_records(read, frame, ends)
+
+
+@pytest.mark.parametrize("extra", [None, "__MACOSX/._t.csv"])
+def test_a_zip_of_one_table_is_read_as_the_table(tmp_path, extra):
+    """Before: refused ("unpack it"), while a gzip file of the same table was read; a zip
+    made on macOS holds each file's resource fork under __MACOSX/ beside it (Apple's
+    AppleDouble format (m)), which holds no records. The archive is read through the
+    standard library's zipfile (PKWARE APPNOTE (m))."""
+    import zipfile
+
+    frame, ends = _records()
+    path = tmp_path / "t.zip"
+    with zipfile.ZipFile(path, "w", zipfile.ZIP_DEFLATED) as archive:
+        archive.writestr("t.csv", frame.to_csv(index=False))
+        if extra:
+            archive.writestr(extra, b"\x00\x05\x16\x07\x00\x02\x00\x00Mac OS X")
+    read, _ = _read(path)
+    _assert_records(read, frame, ends)
+    with zipfile.ZipFile(path, "a") as archive:          # a second table: still refused
+        archive.writestr("t2.csv", frame.to_csv(index=False))
+    with pytest.raises(InputFileError, match=r"zip archive holding 2 file\(s\) \('t.csv', "
+                                             r"'t2.csv'\).*unpack it"):
+        _read(path)
