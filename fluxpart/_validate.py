@@ -194,8 +194,39 @@ def _zip_members(data: bytes) -> list | None:
 
     try:
         with zipfile.ZipFile(io.BytesIO(data)) as archive:
-            return [info.filename for info in archive.infolist() if not info.is_dir()]
+            return [info.filename for info in archive.infolist()
+                    if not info.is_dir() and not info.filename.startswith(_ZIP_EXTRAS)]
     except (zipfile.BadZipFile, OSError, ValueError, EOFError):
+        return None
+
+
+#: Archive members that hold no file of the user's: the resource forks macOS writes
+#: beside each file it zips ("__MACOSX/._name", Apple's AppleDouble format (m)).
+_ZIP_EXTRAS = "__MACOSX/"
+
+
+def single_zip_member(data: bytes) -> bytes | None:
+    """The bytes of the one file a zip archive holds, or None where it holds another
+    number (macOS's ``__MACOSX/`` forks not counted), is a workbook, holds an archive or
+    cannot be read (damaged, encrypted).
+
+    A zip of one text table is the table, as a gzip file is (layouts36; refused before
+    with "unpack it"); a zip of several files is refused by :func:`refuse_binary`,
+    naming them.
+    """
+    import io
+    import zipfile
+
+    try:
+        with zipfile.ZipFile(io.BytesIO(data)) as archive:
+            files = [info for info in archive.infolist()
+                     if not info.is_dir() and not info.filename.startswith(_ZIP_EXTRAS)]
+            if len(files) != 1 or files[0].filename in ("[Content_Types].xml", "mimetype") \
+                    or files[0].filename.lower().endswith((".zip", ".7z", ".tar", ".tgz")):
+                return None
+            return archive.read(files[0])
+    except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError,
+            NotImplementedError):
         return None
 
 

@@ -59,6 +59,7 @@ from ._validate import (
     printable_line,
     read_site_config_toml,
     refuse_binary,
+    single_zip_member,
     unicode_form_hint,
 )
 from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
@@ -2308,9 +2309,13 @@ def _decompressed(data: bytes, path: Path) -> bytes:
     """The bytes of a gzip-, bzip2- or xz-compressed file decompressed, else `data`.
 
     A compressed text table is the table: read it as the file it holds (by its leading
-    bytes, whatever its name), its hash still the compressed file's. A tar archive
-    inside (``.tar.gz``: several files) is refused by name, as are zip archives.
+    bytes, whatever its name), its hash still the compressed file's; so is a zip
+    archive of one file (:func:`fluxpart._validate.single_zip_member`, layouts36). A tar
+    archive inside (``.tar.gz``: several files) is refused by name, as are zip archives
+    of several files.
     """
+    if data.startswith(b"PK\x03\x04"):
+        data = single_zip_member(data) or data
     for magic, name, module in _COMPRESSED:
         if data.startswith(magic) and (name != "bzip2" or data[4:10] == b"1AY&SY"):
             try:
@@ -2367,7 +2372,8 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
     try:
         text = data.decode(encoding)
     except UnicodeDecodeError as error:
-        line = data[:error.start].count(b"\n") + 1
+        # CR alone ends a line too (layouts36: a CR-only file's byte was "on line 1")
+        line = len(re.findall(rb"\r\n|\r|\n", data[:error.start])) + 1
         raise InputFileError(
             f"input file {str(path)!r} is not {encoding} text (byte 0x{data[error.start]:02x} "
             f"on line {line}); set [input] encoding = \"latin-1\" (or \"cp1252\", or "
@@ -2489,7 +2495,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
         options["sep"] = delimiter
     # the skipped lines emptied: a quote in a title or units line (3" for inches) would
     # otherwise open a value the parser reads on through the records
-    parsed = _emptied_lines(text, skipped)
+    parsed = _lf_line_ends(_emptied_lines(text, skipped))
     try:
         raw = pd.read_csv(_io.StringIO(parsed), skip_blank_lines=False,
                           skiprows=skipped, **options)     # a set: no Python call per line
@@ -2934,6 +2940,20 @@ def _emptied_lines(text: str, numbers: set) -> str:
     return "".join(pieces) + text[start:]
 
 
+def _lf_line_ends(text: str) -> str:
+    """`text` with every bare CR (a line end of classic Mac OS and of some loggers'
+    exports) made LF, CR LF kept: the lines :meth:`str.splitlines` counts, one for one.
+
+    pandas' tokenizer reads an empty line between CR-only line ends as part of the next
+    line end when it skips lines (an emptied title or units line), so that every later
+    line is one off: the line after a skipped units line was dropped unseen and the
+    header taken from a record (pandas 3.1 (m); layouts36).
+    """
+    if "\r" not in text or text.count("\r") == text.count("\r\n"):
+        return text
+    return re.sub(r"\r(?!\n)", "\n", text)
+
+
 def _unclosed_quote_line(text_lines: list) -> int:
     """Index of the line opening the quote that the file never closes: the last line
     after which an odd number of quote characters has been read (a doubled quote inside
@@ -2987,6 +3007,19 @@ def _closed_from(text: str, line: int, width: int, delimiter: str,
             "of the file")
 
 
+def _names_line(line: str, delimiter: str) -> bool:
+    """Whether every field of `line` is a name (a letter in it, no number), two or more:
+    a header line, not a record."""
+    cells = (line.split() if delimiter == _WHITESPACE
+             else next(csv.reader([line], delimiter=delimiter), []))
+    cells = [cell.strip() for cell in cells]
+    if len(cells) < 2 or not all(cells):
+        return False
+    numbers = pd.to_numeric(pd.Series(cells), errors="coerce")
+    return bool(numbers.isna().all()) and all(any(ch.isalpha() for ch in cell)
+                                              for cell in cells)
+
+
 def _changed_layout(path: Path, text_lines: list, line: int, width: int,
                     delimiter: str, first_data: int | None = None) -> str:
     """The refusal where every non-blank line from `line` (1-based) to the end has one
@@ -3002,6 +3035,15 @@ def _changed_layout(path: Path, text_lines: list, line: int, width: int,
         return ""       # mixed counts, or lines of one field (a footer or notes block)
     fields = counts.pop()
     what = "added" if fields > width else "removed"
+    if (first_data is None or line > first_data) and _names_line(rest[0], delimiter):
+        # a header line of its own over the lines from there (layouts36: a second table
+        # of other columns written below the first was named as a header line missing)
+        return (f"input file {str(path)!r}: line {line} ({_shown_line(rest[0])!r}) is a "
+                f"header line of {fields} names where the header has {width}, and every "
+                f"line from there on ({len(rest) - 1} lines) has {fields} fields: a second "
+                "table in the file, or a logger program changed and wrote its new header? "
+                f"Split the file at line {line} in a copy and list both parts in [input] "
+                "path (each part is read by its own header)")
     if first_data is not None and line <= first_data:
         return (f"input file {str(path)!r}: every record (line {line} to the end, "
                 f"{len(rest)} lines) has {fields} fields where the header has {width}: the "
@@ -3216,8 +3258,9 @@ def _separator_line(text: str, delimiter: str, rows_before_header: int, path: Pa
     """
     if rows_before_header:
         return 0
-    end = text.find("\n", 0, 256)          # the note is short: no copy of the whole text
-    first = (text[:256] if end < 0 else text[:end]).rstrip("\r")
+    # the note is short: no copy of the whole text; a CR alone ends a line too (layouts36:
+    # a CR-only file's note was read as the header)
+    first = re.split(r"\r\n|\r|\n", text[:256], maxsplit=1)[0]
     match = _SEPARATOR_LINE.fullmatch(first)
     if match is None:
         return 0

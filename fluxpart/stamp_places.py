@@ -288,6 +288,33 @@ _ENDING_AT = _LazyPattern(
     r"|\b(?:interval|period)-(ending|beginning|starting)\b(?![^;]*\d{4})"
     r"|\b(?:time\s*stamps?|timestamps?|stamps?|time\s*labels?)\b[^.;]{0,30}?"
     r"\b(mid)[\s-]*(?:interval|period)\b")
+#: The place phrased around the stamps rather than named beside "interval" (layouts36:
+#: each left unread, so that a file stating start stamps was read an interval late under
+#: time_marks = "end"): stamps "labelled with the start time", "stamped at the end"; the
+#: averages "ending at the time shown", the 30 minutes "preceding the time stamp" or
+#: "after the timestamp" (a duration before the word, so that "values before the
+#: timestamp change" states nothing); the "left edge" of the averaging window; the
+#: period that "closes" (a word for the stamps before it), the time "at which the period
+#: ends" ("interval starts" alone may be a plural: "stamps shifted to interval
+#: starts" tells a conversion); stamps "centred on the averaging period" or at
+#: "interval midpoints". No date may follow ("period ends 2021-12-31" dates an event).
+_PHRASED_PLACE = _LazyPattern(
+    r"(?:\b(?:labell?ed|stamped|marked|dated|indexed)\s+(?:with|at|by)\s+(?:the\s+|its\s+)?"
+    r"(start|beginning|begin|end|middle|centre|center|midpoint)\b"
+    r"|\b(ending|beginning|starting|centred|centered)\s+(?:at|on)\s+(?:the\s+)?"
+    r"(?:time\s+(?:shown|given|written|listed)|time\s*stamps?|timestamps?|stamps?)\b"
+    r"|\b(?:min(?:ute)?s?|hours?|h|interval|period)\s+(?:immediately\s+)?"
+    r"(preceding|following|before|after|prior\s+to|up\s+to)\s+(?:the\s+|each\s+|its\s+)?"
+    r"(?:time\s*stamps?|timestamps?|stamps?|time\s+(?:shown|given|label))\b"
+    r"|\b(left|right)[\s-]+(?:edge|side|bound)\s+of\s+(?:the\s+|each\s+)?"
+    r"(?:averaging\s+)?(?:window|interval|period)\b"
+    r"|\b(?:time\s*stamps?|timestamps?|stamps?)\b[^.;]{0,40}?\b(?:interval|period|window)"
+    r"\s+(closes|opens)\b"
+    r"|\b(?:at\s+which|when)\s+(?:the|each|its)\s+(?:averaging\s+)?"
+    r"(?:interval|period|window)\s+(ends|starts|closes|opens|begins)\b"
+    r"|\b(?:time\s*stamps?|timestamps?|stamps?)\b[^.;]{0,20}?\b(centred|centered)\s+(?:on|in)\b"
+    r"|\b(?:interval|period)\s+(midpoints?|mid-points?|centres|centers)\b)"
+    r"(?![^;]*\d{4})")
 _OTHER_PLACE_WORDS = {
     "début": "start", "debut": "start", "inicio": "start", "comienzo": "start",
     "principio": "start", "inizio": "start", "fin": "end", "final": "end", "fine": "end",
@@ -298,6 +325,12 @@ _OTHER_PLACE_WORDS = {
     "vorhergehenden": "end", "vorherigen": "end", "letzten": "end",
     "beginning": "start", "starting": "start", "begin": "start", "start": "start",
     "ending": "end", "end": "end", "mid": "middle",
+    # phrased around the stamps (_PHRASED_PLACE, layouts36)
+    "middle": "middle", "center": "middle", "midpoint": "middle", "centred": "middle",
+    "centered": "middle", "before": "end", "prior to": "end", "up to": "end",
+    "after": "start", "left": "start", "right": "end", "closes": "end", "ends": "end",
+    "opens": "start", "begins": "start", "starts": "start", "midpoints": "middle",
+    "mid-points": "middle", "mid-point": "middle", "centres": "middle", "centers": "middle",
 }
 #: A place word within a few words after a word for the stamps, in one clause
 #: ("Timestamp at start of each 30-min average", "Time label: interval start")
@@ -329,6 +362,9 @@ _ZONE_KEY = _LazyPattern(r"(?:time[\s_-]*zone(?:[\s_-]*offset)?|zeitzone|\btz\b|
                          r"|zona\s+horaria|huso\s+horario|fuso\s+orario|fuso\s+hor[aá]rio"
                          r"|tijd\s*s?zone|strefa\s+czasowa|tidszon|tidssone"
                          r"|(?P<unit_key>hours?|minutes?)\s+(?:from|to|relative\s+to)\s+(?:utc|gmt))"
+                         # "UTC offset of the stamps: +2 h" (layouts36)
+                         r"(?:\s+of\s+(?:the\s+)?(?:time\s*stamps?|timestamps?|stamps?|times|clock"
+                         r"|logger|data))?"
                          # "utc_offset_minutes = 120" (layouts35)
                          r"(?:[\s_-]*(?P<unit_word>hours|hrs|minutes|mins)\b)?"
                          r"(?:\s*[\(\[](?:utc|gmt)[\s_-]*offset[\)\]])?"   # "Time zone (UTC offset)"
@@ -338,6 +374,10 @@ _ZONE_KEY = _LazyPattern(r"(?:time[\s_-]*zone(?:[\s_-]*offset)?|zeitzone|\btz\b|
                          r"\s*[\]\)]?\s*[:=,;]?\s*\(?\s*(?P<value>[^,;]*)")
 #: "1 h ahead of UTC", "5 hours behind GMT": an offset written in words (layouts35: such a
 #: value was read as UTC, the clock it is counted from)
+#: "Stamps are 2 h ahead of UTC": a word for the stamps or the clock, then an offset in
+#: words (layouts36: read only after a zone key before)
+_STAMPS_AHEAD = _LazyPattern(r"\b(?:time\s*stamps?|timestamps?|stamps?|times|clock|logger)\b"
+                             r"[^.;0-9]{0,20}?(?=\d)")
 _RELATIVE_OFFSET = _LazyPattern(r"(\d{1,2}(?:\.\d+)?)\s*(h|hrs?|hours?|min|mins|minutes?)?\s+"
                                 r"(ahead\s+of|behind|east\s+of|west\s+of)\s+(?:utc|gmt)")
 #: "Logger clock offset: UTC+02:00", "clock_offset = +0200": a clock's offset key, read
@@ -349,7 +389,8 @@ _COUNTED_FROM = _LazyPattern(r"\d\s*(?:h|hrs?|hours?|min|mins|minutes?)?\s+(?:fr
 _ZONE_FORM_OFFSET = _LazyPattern(r"^([+-])(\d{2}):?(00|30|45)$")
 #: "Logger clock set to UTC+2" (not "synchronised to", which may name the clock's source
 #: only)
-_CLOCK_SET = _LazyPattern(r"\bclock\s+(?:is\s+)?(?:set|kept|running)\s+(?:to|on|in)\s+"
+_CLOCK_SET = _LazyPattern(r"\b(?:clock|logger|datalogger)\s+(?:is\s+)?(?:set|kept|running|runs)"
+                          r"\s+(?:to|on|in)\s+"
                           r"(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?(?![a-z0-9])")
 #: "Time offset: +1 h" (a key read only with a unit or a sign and "UTC": "time offset:
 #: 0.2" may be a sensor's lag)
@@ -364,13 +405,15 @@ _NUMBER_UNIT = _LazyPattern(r"([+-]?\d{1,3}(?:\.\d+)?)\s*(h|hrs?|hours?|min|mins
 #: Time (UT, French TU), within a second of UTC (m), with an optional ISO 8601 offset
 _CLOCK_VALUE = _LazyPattern(r"(?:utc|gmt|gps|z|zulu|ut|tu|universal)(?:\s*time)?"
                             r"(?:\s*\((?:utc|gmt|gps)\))?"
-                            r"(?P<offset>\s*[+-]\s*\d{1,2}(?::?\d{2})?)?")
+                            r"(?P<offset>\s*[+-]\s*\d{1,2}(?::?\d{2})?)?"
+                            r"(?:\s*(?:h|hrs?|hours?)\b)?")     # "UTC + 2 h" (layouts36)
 #: "Data logger time: UTC", "Time: UTC+00:00", "Standard time: UTC": a key ending in
 #: "time" followed by a clock and nothing else (since layouts27; a date or anything else
 #: after the key states nothing: "Export time: 2021-06-01 12:00 UTC")
 _TIME_KEY = _LazyPattern(r"\btime\s*[\]\)]?\s*[:=]\s*\(?\s*(?P<value>[^,;]*)")
 _IN_UTC = _LazyPattern(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|zeitangaben"
                        r"|data|values|records|readings"   # "All values in UTC+2" (layouts35)
+                       r"|recorded|logged"                # "Recorded in UTC+2" (layouts36)
                        r"|zeiten|uhrzeiten|horodatage|heures?)\b[^.;]{0,24}?"
                        r"\b(?:in|en)\s+(utc|gmt)(\s*[+-]\s*\d{1,2}(?::?\d{2})?)?"
                        r"(?![a-z0-9]|-[a-z])")     # not "data in GMT-based format"
@@ -385,7 +428,7 @@ _EVENT_TIME = _LazyPattern(r"\bof\s+(?:the\s+)?(?:file\s+)?(?:export|creation|do
                            r"|processing|writing|upload)")
 #: "Time reference: UTC", "Timebase: UTC", "Time standard = GMT" (a clock or zone follows;
 #: bare numbers are not read, since "time base: 10" may be a sampling rate)
-_REFERENCE_KEY = _LazyPattern(r"(?:\btime[\s_-]*(?:reference|base|standard)|\btimebase"
+_REFERENCE_KEY = _LazyPattern(r"(?:\btime[\s_-]*(?:reference|base|basis|standard)|\btimebase"
                               r"|\bzeitbasis|\bzeitreferenz)\s*[\]\)]?\s*[:=]\s*\(?\s*([^,;]*)")
 #: Zones written out in words, as logger software, Windows (its zone identifiers, "W.
 #: Europe Standard Time" for Berlin) and data documentation write them [h]; the longer
@@ -463,10 +506,10 @@ def stated_place(text: str, cell: bool = False) -> str | None:
     found |= {places[m.group(1) or m.group(2)] for m in _GERMAN_PLACE.finditer(lowered)}
     for stamp in _STAMP_PLACE.finditer(lowered):          # "Timestamp at start of ..."
         found.add(places.get(stamp.group(1), stamp.group(1)))
-    for pattern in (_ROMANCE_PLACE, _RELATIVE_PLACE, _ENDING_AT):   # since layouts27
-        for m in pattern.finditer(lowered):
-            word = next(group for group in m.groups() if group)
-            found.add(_OTHER_PLACE_WORDS[word])
+    for pattern in (_ROMANCE_PLACE, _RELATIVE_PLACE, _ENDING_AT, _PHRASED_PLACE):
+        for m in pattern.finditer(lowered):                 # since layouts27 (36)
+            word = re.sub(r"\s+", " ", next(group for group in m.groups() if group))
+            found.add(_OTHER_PLACE_WORDS.get(word, word))
     if cell:                                              # a units cell "interval begin"
         for m in _CELL_PLACE.finditer(spaced):
             word = m.group(1) or m.group(2) or m.group(3)
@@ -496,6 +539,16 @@ _LINE_PLACE = _LazyPattern(
     r"(?:\s+(?:time|times|time\s*stamps?|timestamps?|stamps?))?")
 
 
+#: A line that is a key of the stamps' place and its value, nothing else:
+#: "timestamp_position = start", "Stamp position: end", "TIMESTAMP convention: interval
+#: ending" (layouts36: unread before)
+_KEY_PLACE = _LazyPattern(
+    r"(?:time[\s_-]*stamps?|timestamps?|stamps?|time[\s_-]*labels?)"
+    r"(?:[\s_-]*(?:position|place|convention|reference|mark|location|alignment))?"
+    r"\s*[:=]\s*(?:(?:averaging[\s_-]+)?(?:interval|period)[\s_-]+)?"
+    r"(start|beginning|begin|end|ending|starting|middle|centre|center|midpoint)")
+
+
 def _line_place(spaced: str, places: dict) -> set:
     """The place a line above the header states as "period start" or "interval end".
 
@@ -513,10 +566,11 @@ def _line_place(spaced: str, places: dict) -> set:
     """
     # comment marks, quotes and a spreadsheet's empty cells ("Period start,,,,") aside
     line = spaced.strip(" \t#;,/*!%'\"").rstrip(".").strip(" \t#;,/*!%'\"")
-    match = _LINE_PLACE.fullmatch(line)
+    match = _LINE_PLACE.fullmatch(line) or _KEY_PLACE.fullmatch(line)
     if match is None:
         return set()
-    return {places.get(match.group(1), match.group(1))}
+    word = match.group(1)
+    return {places.get(word, _OTHER_PLACE_WORDS.get(word, word))}
 
 
 def stated_offset(text: str) -> float | None:
@@ -603,6 +657,9 @@ def stated_offset(text: str) -> float | None:
             offset = zone_offset(written)         # "Logger time: CET", "Time: Europe/Helsinki"
         if offset is not None:
             return offset
+    ahead = _STAMPS_AHEAD.search(lowered)
+    if ahead and _RELATIVE_OFFSET.match(lowered, ahead.end()):
+        return _value_clock(lowered[ahead.end():])     # "Stamps are 2 h ahead of UTC"
     spelled = spelled_zone_offset(lowered)        # "All times in Coordinated Universal Time"
     if spelled is not None and _ABOUT_STAMPS.search(_SPELLED.sub(" ", lowered)):
         return spelled                            # not a title that names a zone in passing

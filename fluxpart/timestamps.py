@@ -666,40 +666,48 @@ def _serial_date_column(text: pd.Series, time_columns) -> str:
             "time_format to match")
 
 
-def _seconds_of_day(text: pd.Series, time_format: str) -> str:
-    """Name a time field that counts the seconds of the day ("2021-06-01 3600" for
-    01:00), or "".
+#: Units a time field may count from midnight in: (name, per day, per minute).
+_DAY_COUNTS = (("seconds", 86400, 60), ("minutes", 1440, 1))
 
-    The test: a format whose time is ``%H%M`` at its end, and the last field of every
-    stamp a whole number from 0 to 86400 in steps of whole minutes, some of them above
-    2400 (no hhmm clock reads them) and the first step between stamps 30 or 60 minutes
-    as seconds. Such stamps are refused rather than read (layouts33: refused with no
-    cause): the seconds are plain to convert in a copy.
+
+def _seconds_of_day(text: pd.Series, time_format: str) -> str:
+    """Name a time field that counts the seconds or the minutes of the day ("2021-06-01
+    3600" or "2021-06-01 60" for 01:00), or "".
+
+    The test: a format whose time is ``%H%M``, ``%M`` or ``%S`` at its end, and the last
+    field of every stamp a whole number from 0 to a day's count in steps of whole
+    minutes, some of them no hhmm clock reads (above 2400, or 60 to 99 past a hundred)
+    and the median step between stamps 30 or 60 minutes in that unit. Such stamps are
+    refused rather than read (layouts33: seconds refused with no cause; layouts36:
+    minutes): the counts are plain to convert in a copy.
 
     References
     ----------
-    A day holds 86,400 seconds (SI; common practice); loggers write the time of day
-    as seconds since midnight beside a date (common practice).
+    A day holds 86,400 seconds, 1,440 minutes (SI; common practice); loggers write the
+    time of day as seconds or minutes since midnight beside a date (common practice).
     """
-    if not time_format.endswith("%H%M"):
+    if not time_format.endswith(("%H%M", "%M", "%S")):
         return ""
     last = text.str.strip().str.rsplit(n=1).str[-1]
     numbers = pd.to_numeric(last, errors="coerce").to_numpy(dtype=float)
-    if numbers.size < 3 or not np.isfinite(numbers).all():
-        return ""
-    if (numbers != np.round(numbers)).any() or numbers.min() < 0 or numbers.max() > 86400 \
-            or numbers.max() <= 2400 or (numbers % 60).any():
+    if numbers.size < 3 or not np.isfinite(numbers).all() \
+            or (numbers != np.round(numbers)).any() or numbers.min() < 0:
         return ""
     steps = np.diff(numbers)
     steps = steps[steps > 0]
-    if steps.size == 0 or np.median(steps) not in (1800.0, 3600.0):
-        return ""
-    hours, seconds = divmod(int(numbers[np.argmax(numbers > 2400)]), 3600)
-    example = last.iloc[int(np.argmax(numbers > 2400))]
-    return (f"the time field counts the seconds of the day ({example!r} is "
-            f"{hours:02d}:{seconds // 60:02d}), not hours and minutes, which fluxpart does "
-            "not read: write it as hh:mm in a copy of the file (seconds / 3600 hours) and "
-            "set [input] time_format to match")
+    no_clock = (numbers > 2400) | (numbers % 100 >= 60)
+    for unit, per_day, per_minute in _DAY_COUNTS:
+        if numbers.max() > per_day or (numbers % per_minute).any() or not no_clock.any() \
+                or steps.size == 0 or np.median(steps) not in (30.0 * per_minute,
+                                                               60.0 * per_minute):
+            continue
+        position = int(np.argmax(no_clock))
+        hours, minutes = divmod(int(numbers[position]) // per_minute, 60)
+        return (f"the time field counts the {unit} of the day ({last.iloc[position]!r} is "
+                f"{hours:02d}:{minutes:02d}), not hours and minutes, which fluxpart does "
+                f"not read: write it as hh:mm in a copy of the file ({unit} / "
+                f"{per_minute * 60} hours) and set [input] time_format to match")
+    return ""
 
 
 def _date_part(time_format: str) -> str | None:
@@ -1359,7 +1367,10 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             lead = int(np.argmin(failed)) if not failed.all() else len(failed)
             skip = rows_after_header + (lead if lead <= 4 else 1)
             hint = (f"; if the file has {'a units line' if skip == 1 else f'{skip} lines'} "
-                    f"{'' if skip == 1 else '(units, processing) '}under the header, set "
+                    # a blank line among them: CR CR LF line ends (a CR LF file converted
+                    # again) put one under every line (layouts36)
+                    f"{'' if skip == 1 else '(units, processing or blank lines) '}under the "
+                    "header, set "
                     f"[input] rows_after_header = {skip}")
         elif _NULL_STAMP.fullmatch(text.iloc[first]) and not failed.all():
             # a database's or a statistics program's word for no value in the time column

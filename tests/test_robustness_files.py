@@ -69,9 +69,9 @@ def test_site_config_not_utf8_names_file_and_line(example, tmp_path, capsys):
 
 @pytest.mark.parametrize("kind", ["zip"])
 def test_compressed_input_is_named_not_blamed_on_encoding(example, tmp_path, capsys, kind):
-    """A zip archive is named as such; changing [input] encoding could not help. (gzip-
-    and bzip2-compressed files are read since round layouts18: see
-    ``test_robustness_layouts18.py``.)"""
+    """A zip archive of several files is named as such; changing [input] encoding could
+    not help. (gzip- and bzip2-compressed files are read since round layouts18, a zip of
+    one file since layouts36: see ``test_robustness_layouts36.py``.)"""
     data = example.with_suffix(".csv").read_bytes()
     packed = tmp_path / f"tower.{kind}"
     if kind == "gzip":
@@ -81,6 +81,7 @@ def test_compressed_input_is_named_not_blamed_on_encoding(example, tmp_path, cap
     else:
         with zipfile.ZipFile(packed, "w", compression=zipfile.ZIP_DEFLATED) as archive:
             archive.writestr("tower.csv", data)
+            archive.writestr("tower_copy.csv", data)
     config = tmp_path / "site.toml"
     _configure(example, config, f'path = "{packed.name}"')
     assert main(["check", str(config)]) == 2

@@ -228,11 +228,13 @@ def test_a_zip_holding_a_compressed_file_names_it(tmp_path):
     path = tmp_path / "t.zip"
     with zipfile.ZipFile(path, "w") as archive:
         archive.writestr("tower.csv.gz", gzip.compress(b"stamp,fc\n", mtime=0))
-    assert zipfile.ZipFile(path).namelist() == ["tower.csv.gz"]
+        archive.writestr("notes.txt", "station 4")   # one file alone is read (layouts36)
+    assert zipfile.ZipFile(path).namelist() == ["tower.csv.gz", "notes.txt"]
     with pytest.raises(Exception) as caught:
         _read(path)
     message = str(caught.value)
-    assert "holding 1 file(s) ('tower.csv.gz')" in message and "workbook" not in message
+    assert "holding 2 file(s) ('tower.csv.gz', 'notes.txt')" in message
+    assert "workbook" not in message
     # a workbook's parts ([Content_Types].xml, ECMA-376 (m)) keep the workbook's words
     book = tmp_path / "b.xlsx"
     with zipfile.ZipFile(book, "w") as archive:
