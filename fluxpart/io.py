@@ -1065,6 +1065,14 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             labelled = nee_label_beside_storage(mapping["nee"], mapping["storage"])
             if labelled and not slope_reads_turbulent(turbulent, storage, starts):
                 counted_twice = labelled
+        if counted_twice is None and potential is not None:
+            # a storage column whose changes smooth NEE (mistakes41: the maize store ×10
+            # was named only as a smoothed NEE column)
+            from .storage_size import storage_smooths_nee
+
+            counted_twice = storage_smooths_nee(turbulent, storage,
+                                                np.asarray(potential) <= 0.0, starts,
+                                                interval_minutes, mapping)
         if counted_twice and FLUX_COPY_WORDS in counted_twice:
             # a flux mapped as storage: NEE counted twice cannot be right (mistakes38)
             accepted.append(_refuse_or_warn(
