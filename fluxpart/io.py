@@ -1516,11 +1516,32 @@ def _resolve_paths(value, folder: Path) -> tuple:
                                   "files (e.g. \"*.csv\")")
             found.extend(matches)
         else:
+            if not (folder / item).exists():
+                elsewhere = _other_folder_hint(item, folder)
+                if elsewhere:
+                    raise ConfigError(f"[input] path = {setting_text(item)}: no such file in "
+                                      f"the site config's folder {str(folder)!r}{elsewhere}")
             found.append(folder / item)
     repeated = [p for i, p in enumerate(found) if p in found[:i]]
     if repeated:
         raise ConfigError(f"[input] path names {str(repeated[0])!r} more than once")
     return tuple(found)
+
+
+def _other_folder_hint(item: str, folder: Path) -> str:
+    """Where a relative ``[input] path`` missing beside the config names a file relative to
+    the current folder or to a folder above the config's (a path written from where the
+    command was run, or from the project's top folder: round mistakes41), the hint
+    naming that file; "" otherwise."""
+    if Path(item).is_absolute():
+        return ""
+    for base in (Path.cwd(), *list(folder.resolve().parents)[:3]):
+        candidate = base / item
+        if candidate.is_file() and candidate.resolve() != (folder / item).resolve():
+            return (f"; it names {str(candidate)!r} relative to {str(base)!r}: [input] path is "
+                    "read relative to the site config's own folder (so a run from any folder "
+                    "reads the same file): write it relative to that folder, or in full")
+    return ""
 
 
 def _as_paths(path) -> list:

@@ -15,18 +15,13 @@ Not collected by pytest; prints figures and asserts nothing. Usage::
 
 from __future__ import annotations
 
-import argparse
 import sys
-import warnings
 from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-import bench_generalisation  # noqa: E402
-import bench_other_physics  # noqa: E402
-from bench_storage_mapping import store_columns  # noqa: E402
+from bench_storage_mapping import generated_years, store_columns  # noqa: E402
 
-from fluxpart import scenarios  # noqa: E402
 from fluxpart.solar import potential_radiation  # noqa: E402
 from fluxpart.storage_size import storage_smooths_nee  # noqa: E402
 
@@ -34,18 +29,7 @@ FACTORS = (1.0, 3.0, 10.0)
 
 
 def main(argv=None) -> int:
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--sites", type=int, default=20, help="scenarios.generate seeds")
-    parser.add_argument("--others", type=int, default=14,
-                        help="seeds of bench_generalisation and of bench_other_physics each")
-    options = parser.parse_args(argv)
-    warnings.simplefilter("ignore")
-    years = [(f"scenarios {seed}", lambda s=seed: scenarios.generate(s))
-             for seed in range(options.sites)]
-    years += [(f"generalisation {seed}", lambda s=seed: bench_generalisation.generate(s)[1])
-              for seed in range(options.others)]
-    years += [(f"other physics {seed}", lambda s=seed: bench_other_physics.generate(s))
-              for seed in range(options.others)]
+    years = generated_years(__doc__.splitlines()[0], argv, sites=20)
     named = {factor: 0 for factor in FACTORS}
     for name, make in years:
         site_year = make()

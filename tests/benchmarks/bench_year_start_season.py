@@ -14,33 +14,18 @@ split). Not collected by pytest; prints figures and asserts nothing. Usage::
 
 from __future__ import annotations
 
-import argparse
 import sys
-import warnings
 from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-import bench_generalisation  # noqa: E402
-import bench_other_physics  # noqa: E402
+from bench_storage_mapping import generated_years  # noqa: E402
 
-from fluxpart import scenarios  # noqa: E402
 from fluxpart.year_start_season import split_growing_season  # noqa: E402
 
 
 def main(argv=None) -> int:
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--sites", type=int, default=70, help="scenarios.generate seeds")
-    parser.add_argument("--others", type=int, default=14,
-                        help="seeds of bench_generalisation and of bench_other_physics each")
-    options = parser.parse_args(argv)
-    warnings.simplefilter("ignore")
-    years = [(f"scenarios {seed}", lambda s=seed: scenarios.generate(s))
-             for seed in range(options.sites)]
-    years += [(f"generalisation {seed}", lambda s=seed: bench_generalisation.generate(s)[1])
-              for seed in range(options.others)]
-    years += [(f"other physics {seed}", lambda s=seed: bench_other_physics.generate(s))
-              for seed in range(options.others)]
+    years = generated_years(__doc__.splitlines()[0], argv, sites=70)
     own_named = other_named = 0
     for name, make in years:
         site_year = make()
