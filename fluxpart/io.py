@@ -78,6 +78,7 @@ from .fixed_width import delimited, fused_header_names, run_together_field
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .site import Site
+from .split_factor import UNIT_FIT, jump_factor, unit_of_factor
 from .stamp_places import (
     half_interval_message,
     name_conflict_message,
@@ -1065,6 +1066,14 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             labelled = nee_label_beside_storage(mapping["nee"], mapping["storage"])
             if labelled and not slope_reads_turbulent(turbulent, storage, starts):
                 counted_twice = labelled
+        if counted_twice is None and potential is not None:
+            # a storage column whose changes smooth NEE (mistakes41: the maize store ×10
+            # was named only as a smoothed NEE column)
+            from .storage_size import storage_smooths_nee
+
+            counted_twice = storage_smooths_nee(turbulent, storage,
+                                                np.asarray(potential) <= 0.0, starts,
+                                                interval_minutes, mapping)
         if counted_twice and FLUX_COPY_WORDS in counted_twice:
             # a flux mapped as storage: NEE counted twice cannot be right (mistakes38)
             accepted.append(_refuse_or_warn(
@@ -1508,11 +1517,32 @@ def _resolve_paths(value, folder: Path) -> tuple:
                                   "files (e.g. \"*.csv\")")
             found.extend(matches)
         else:
+            if not (folder / item).exists():
+                elsewhere = _other_folder_hint(item, folder)
+                if elsewhere:
+                    raise ConfigError(f"[input] path = {setting_text(item)}: no such file in "
+                                      f"the site config's folder {str(folder)!r}{elsewhere}")
             found.append(folder / item)
     repeated = [p for i, p in enumerate(found) if p in found[:i]]
     if repeated:
         raise ConfigError(f"[input] path names {str(repeated[0])!r} more than once")
     return tuple(found)
+
+
+def _other_folder_hint(item: str, folder: Path) -> str:
+    """Where a relative ``[input] path`` missing beside the config names a file relative to
+    the current folder or to a folder above the config's (a path written from where the
+    command was run, or from the project's top folder: round mistakes41), the hint
+    naming that file; "" otherwise."""
+    if Path(item).is_absolute():
+        return ""
+    for base in (Path.cwd(), *list(folder.resolve().parents)[:3]):
+        candidate = base / item
+        if candidate.is_file() and candidate.resolve() != (folder / item).resolve():
+            return (f"; it names {str(candidate)!r} relative to {str(base)!r}: [input] path is "
+                    "read relative to the site config's own folder (so a run from any folder "
+                    "reads the same file): write it relative to that folder, or in full")
+    return ""
 
 
 def _as_paths(path) -> list:
@@ -2043,20 +2073,45 @@ def _unit_changed_within(name: str, message: str, values, converted: dict, units
                                      missing, starts[rows])
         return name in refusals
 
-    found = []
-    for cut in cuts:
-        before, after = slice(0, cut), slice(cut, None)
-        # earlier records right as declared, later ones in the suggested unit, each
-        # told apart affirmatively (or the reverse order)
-        for first, second in ((declared, other), (other, declared)):
-            if (not refused(before, first) and not refused(after, second)
-                    and (refused(after, first) if first == declared else
-                         refused(before, second))
-                    and (not strict or (refused(before, second) and refused(after, first)))):
-                found.append((cut, first, second))
-                break
+    def splits(other) -> list:
+        found = []
+        for cut in cuts:
+            before, after = slice(0, cut), slice(cut, None)
+            # earlier records right as declared, later ones in the suggested unit, each
+            # told apart affirmatively (or the reverse order)
+            for first, second in ((declared, other), (other, declared)):
+                if (not refused(before, first) and not refused(after, second)
+                        and (refused(after, first) if first == declared else
+                             refused(before, second))
+                        and (not strict or (refused(before, second)
+                                            and refused(after, first)))):
+                    found.append((cut, first, second))
+                    break
+        return found
+
+    found = splits(other)
     if not found:
         return None
+    # the jump of the values at the change measures the unit's factor (round mistakes41:
+    # g C m-2 per record, 46 times smaller, was named as mg CO2, 22.7)
+    head = message.split("; ")[0]
+    jump = jump_factor(values, starts, found[0][0])
+    if jump is not None:
+        measured = jump[0] if found[0][1] == declared else 1.0 / jump[0]
+        factors = _unit_factors(name, declared, interval_minutes)
+        fitted = unit_of_factor(measured, factors)
+        refound = splits(fitted) if fitted not in (None, other) else []
+        if refound:
+            head = head.replace(f"{factors.get(other, 0.0):.3g} times too small ({other})",
+                                f"{factors[fitted]:.3g} times too small ({fitted})")
+            found, other = refound, fitted
+        if other in factors:
+            fit = (f"fits {other!r} ({factors[other]:.3g} times)" if fitted == other else
+                   "fits no unit within a factor "
+                   f"{UNIT_FIT:g}: " + " or ".join(f"{unit!r} ({factor:.3g} times)"
+                                                     for unit, factor in factors.items()))
+            head += (f" (the values jump by a factor {measured:.3g} in the fortnights "
+                     f"either side of {jump[1]:%Y-%m-%d}, which {fit})")
     cut, first, second = found[0]
     last = found[-1][0]
     canonical = VARIABLES[name].unit if name in VARIABLES else "its canonical unit"
@@ -2072,12 +2127,28 @@ def _unit_changed_within(name: str, message: str, values, converted: dict, units
     told = ("each part refused in the other unit" if strict else
              "one part refused alone as declared, as a one-file record of its length "
              "would be")
-    return (f"{message.split('; ')[0]}; the records read right in two units, split "
+    return (f"{head}; the records read right in two units, split "
             f"{at} {where}: those before in {shown[0]}, those after in {shown[1]} ({told}): "
             f"a unit that changed within the record (a logger "
             f"program or export changed), which one [input.units] setting cannot read; "
             f"convert column {mapping[name]!r} of one part in a copy of its file(s) (or list "
             f"{name} in [input] accept_units)")
+
+
+def _unit_factors(name: str, declared, interval_minutes: int) -> dict:
+    """Unit -> its values' ratio to the declared unit's for `name` (22.7 for mg CO2 m-2
+    s-1 against µmol m-2 s-1; 46.3 for g C m-2 per 30-min record), the declared unit and
+    its spellings left out."""
+    one = np.array([1.0])
+    base = to_canonical(one, name, declared, interval_minutes=interval_minutes)[0]
+    factors = {}
+    for unit in units_for(name):
+        factor = float(to_canonical(one, name, unit, interval_minutes=interval_minutes)[0]
+                       / base)
+        if abs(factor - 1.0) > 1e-6 and not any(abs(factor - known) < 1e-6 * factor
+                                                for known in factors.values()):
+            factors[unit] = factor
+    return factors
 
 
 def _written_limit(converted: dict, texts: list) -> float | None:

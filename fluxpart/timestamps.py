@@ -1640,6 +1640,20 @@ def _day_month_mixed(stamps) -> bool:
     return bool(exchanged.notna().all() and (np.diff(exchanged.to_numpy()) > np.timedelta64(0)).all())
 
 
+def _has_daylight_saving(time_zone: str, year: int) -> bool:
+    """True where the IANA zone's UTC offset differs between January and July of `year`
+    (a zone of one offset all year, ``"Etc/GMT-1"`` or ``"UTC"``, has none); True for a
+    zone that cannot be looked up (the reader names it elsewhere)."""
+    from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+
+    try:
+        zone = ZoneInfo(time_zone)
+    except (ZoneInfoNotFoundError, ValueError, OSError):
+        return True
+    return (datetime(year, 1, 15, tzinfo=zone).utcoffset()
+            != datetime(year, 7, 15, tzinfo=zone).utcoffset())
+
+
 def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: np.ndarray,
                 time_zone: str | None = None) -> None:
     """Raise for repeated stamps or stamps going backwards within one file.
@@ -1657,11 +1671,17 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
                 or repeated_stamp_hint(pd.DatetimeIndex(stamps)))
         repeated = pd.DatetimeIndex(stamps[duplicated])
         same_day = repeated[repeated.normalize() == stamps[first].normalize()]
-        # a daylight-saving repeat: one or two clock hours of one day in an autumn month
-        if (time_zone is None and len(same_day.floor("h").unique()) <= 2
+        # a daylight-saving repeat: one or two clock hours of one day in an autumn month;
+        # a zone of one offset all year ("Etc/GMT-1", "UTC") reads no such repeat either
+        # (round mistakes41: named only as a repeated stamp, "keep one of them")
+        fixed = time_zone is not None and not _has_daylight_saving(time_zone,
+                                                                   stamps[first].year)
+        if ((time_zone is None or fixed) and len(same_day.floor("h").unique()) <= 2
                 and stamps[first].month in (3, 4, 9, 10, 11)):
+            zone = (f" (time_zone = {setting_text(time_zone)} keeps one offset all year, "
+                    "without daylight saving)" if fixed else "")
             hint = ("if the file is in civil time with daylight saving, set [input] "
-                    "time_zone = \"Area/City\"; otherwise " + (told or hint))
+                    f"time_zone = \"Area/City\"{zone}; otherwise " + (told or hint))
         elif told:
             hint = told
         elif (time_zone is None and len(repeated.unique()) >= 2

@@ -16,8 +16,12 @@ that the fixed threshold has no bootstrap.
 fixed threshold lies below the detector's 5th bootstrap percentile and below the
 detected threshold by more than the factor the seasonal rule uses
 (:data:`fluxpart.ustar_seasonal.SEASONAL_MARGIN`). The fixed threshold is still
-used: it may be a site's published value, and a threshold set too high costs
-data only, so only a low one is named.
+used: it may be a site's published value. A threshold set too high costs data
+only, and is named only where it lies above the detector's 95th percentile by that
+factor and keeps fewer than :data:`KEPT_NIGHT_SHARE` of the measured night records
+the detected threshold keeps (round mistakes41: 0.5 m s-1 on the grassland example was
+named only by the E0 windows it emptied), a threshold in another unit or of another
+site rather than this site's own.
 """
 
 from __future__ import annotations
@@ -28,11 +32,20 @@ import pandas as pd
 from . import ustar
 from .ustar_seasonal import SEASONAL_MARGIN
 
-__all__ = ["fixed_threshold_note", "years_below_detected"]
+__all__ = ["KEPT_NIGHT_SHARE", "fixed_threshold_note", "years_below_detected"]
 
 #: Bootstrap resamples of the check's detection: 100, Papale et al. (2006) (m), the
 #: default of ``Config.ustar_bootstrap_draws``, which a fixed run does not read.
 _DRAWS = 100
+#: Share of the measured night records the detected threshold keeps below which a fixed
+#: threshold above the detected 95th percentile is named as too high [1] (round
+#: mistakes41; our choice). Above the detected range the night flux no longer rises
+#: with u*, so a higher threshold removes well-mixed nights only; keeping fewer than a
+#: tenth of them leaves the 15-day E0 windows (6 records or more spanning 5 K) mostly
+#: empty: on the grassland example (invented) 0.5 m s-1 against the detected 0.156
+#: kept 113 of 2898 (3.9 %) and no E0 window on tsoil was accepted (NEE -36.5, nighttime
+#: Reco -42.4 g C m-2), while 0.25-0.4 kept 43-10 % and its intervals covered the truth.
+KEPT_NIGHT_SHARE = 0.1
 
 
 def years_below_detected(fixed: float, annual: pd.DataFrame,
@@ -139,7 +152,7 @@ def fixed_threshold_note(index, nee, ustar_values, tair, is_night, latitude: flo
         plateau_reference=config.ustar_plateau_reference)
     rows = years_below_detected(fixed, found.annual)
     if not len(rows):
-        return None
+        return _far_above_note(fixed, found.annual, index, nee, ustar_values, is_night)
     years = "; ".join(
         f"{int(row.year)}: {row.threshold:.3f} (5-95 %: {row.threshold_p05:.3f}-"
         f"{row.threshold_p95:.3f})" for row in rows.itertuples())
@@ -156,3 +169,41 @@ def fixed_threshold_note(index, nee, ustar_values, tair, is_night, latitude: flo
             "storage and drainage are kept as measured and bias NEE low and Reco low; "
             "the fixed value is used as set; check it, or remove ustar_method = "
             "\"fixed\" to filter at the detected threshold")
+
+
+def _far_above_note(fixed: float, annual: pd.DataFrame, index, nee, ustar_values,
+                    is_night) -> str | None:
+    """The warning where a fixed threshold [m s-1] lies far above the detected one and
+    keeps fewer than :data:`KEPT_NIGHT_SHARE` of the night records it keeps; None else.
+
+    Per year of `annual` (``year``, ``threshold``, ``threshold_p95`` [m s-1]): `fixed`
+    above ``SEASONAL_MARGIN`` times the 95th percentile, and the measured night records
+    (finite NEE and u*) with u* at or above `fixed` fewer than the share of those at or
+    above the detected threshold.
+    """
+    if not len(annual) or "threshold_p95" not in annual.columns:
+        return None
+    years = pd.DatetimeIndex(index).year.to_numpy()
+    nee = np.asarray(nee, dtype=float)
+    ustar_values = np.asarray(ustar_values, dtype=float)
+    measured = np.asarray(is_night, dtype=bool) & np.isfinite(nee) & np.isfinite(ustar_values)
+    named = []
+    for row in annual.itertuples():
+        if not (np.isfinite(row.threshold_p95) and fixed > SEASONAL_MARGIN * row.threshold_p95):
+            continue
+        night = measured & (years == int(row.year))
+        kept = int(np.count_nonzero(night & (ustar_values >= fixed)))
+        detected = int(np.count_nonzero(night & (ustar_values >= row.threshold)))
+        if detected and kept < KEPT_NIGHT_SHARE * detected:
+            named.append(f"{int(row.year)}: detected {row.threshold:.3f} (5-95 %: "
+                         f"{row.threshold_p05:.3f}-{row.threshold_p95:.3f}), {kept} of the "
+                         f"{detected} measured night records it keeps ({kept / detected:.1%})")
+    if not named:
+        return None
+    return (f"u* threshold: ustar_method = \"fixed\" filters at ustar_threshold = {fixed:g} "
+            f"m s-1, far above the threshold the night records show (moving point test "
+            f"with its bootstrap, m s-1; {'; '.join(named)}): above it the night NEE no "
+            "longer rises with u*, so the fixed value removes well-mixed nights and the "
+            "nighttime fits run short of records; the fixed value is used as set: check "
+            "it is this site's threshold in m s-1 (not cm s-1 or another site's), or "
+            "remove ustar_method = \"fixed\" to filter at the detected threshold")

@@ -1412,6 +1412,13 @@ def test_daylight_saving_civil_time(tmp_path, zone, utc_offset, spring, autumn):
     # without time_zone the repeated hour stops the reader with the time_zone hint
     with pytest.raises(DuplicateTimestampError, match=r"time_zone = \"Area/City\""):
         _read(tmp_path / "t.csv")
+    # a zone of one offset all year (the POSIX-signed Etc zone of the standard offset)
+    # reads no repeated hour either: named with the same hint (round mistakes41)
+    fixed = f"Etc/GMT{-int(utc_offset):+d}"
+    with pytest.raises(DuplicateTimestampError,
+                       match=rf"time_zone = \"Area/City\" \(time_zone = \"{fixed}\" keeps one "
+                             "offset all year"):
+        _read(tmp_path / "t.csv", time_zone=fixed, site=site)
 
 
 def test_daylight_saving_errors(tmp_path):
@@ -2044,3 +2051,22 @@ def test_units_line_that_differs_between_files_is_warned(tmp_path):
     (tmp_path / "b.csv").write_text("\n".join(lines) + "\n")
     _, report = _read([tmp_path / "a.csv", tmp_path / "b.csv"], rows_after_header=1)
     assert not [w for w in report.warnings if "lines under the header" in w]
+
+
+def test_a_path_written_from_another_folder_is_named(tmp_path, monkeypatch):
+    """``[input] path`` is read relative to the site config's folder; one written relative
+    to the folder the command runs in (or the project's top folder) is named with the
+    file it names there (round mistakes41), and an absent file keeps its own message."""
+    (tmp_path / "data").mkdir()
+    (tmp_path / "site").mkdir()
+    _write(tmp_path / "data" / "tower.csv", _records(), marks="end")
+    config = _site_toml(tmp_path / "site", csv="data/tower.csv")
+    monkeypatch.chdir(tmp_path)
+    with pytest.raises(ConfigError, match=r"\[input\] path = \"data/tower.csv\": no such file in "
+                                          r"the site config's folder .*relative to the site "
+                                          r"config's own folder"):
+        read_site_config(config)
+    config.write_text(config.read_text(encoding="utf-8").replace("data/tower.csv", "none.csv"),
+                      encoding="utf-8")
+    with pytest.raises(InputFileError, match="does not exist"):
+        read_site_config(config).read()

@@ -66,9 +66,12 @@ def _correlation(a, b) -> float:
     return float(np.corrcoef(a[both], b[both])[0, 1])
 
 
-def main(argv=None) -> int:
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--sites", type=int, default=40, help="scenarios.generate seeds")
+def generated_years(description: str, argv=None, sites: int = 40) -> list:
+    """(name, maker) of the generated site-years the options ``--sites`` and ``--others``
+    choose: ``scenarios.generate`` seeds, then those of ``bench_generalisation`` and of
+    ``bench_other_physics`` each (shared by the storage and year-start benchmarks)."""
+    parser = argparse.ArgumentParser(description=description)
+    parser.add_argument("--sites", type=int, default=sites, help="scenarios.generate seeds")
     parser.add_argument("--others", type=int, default=14,
                         help="seeds of bench_generalisation and of bench_other_physics each")
     options = parser.parse_args(argv)
@@ -79,6 +82,11 @@ def main(argv=None) -> int:
               for seed in range(options.others)]
     years += [(f"other physics {seed}", lambda s=seed: bench_other_physics.generate(s))
               for seed in range(options.others)]
+    return years
+
+
+def main(argv=None) -> int:
+    years = generated_years(__doc__.splitlines()[0], argv)
     rows = []
     for name, make in years:
         site_year = make()

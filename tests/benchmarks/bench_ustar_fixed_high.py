@@ -1,0 +1,58 @@
+"""A fixed u* threshold far above the detected one: false alarms (round mistakes41).
+
+:func:`fluxpart.ustar_fixed.fixed_threshold_note` names a fixed threshold above the
+detected 95th percentile (times 1.2) that keeps fewer than a tenth of the measured night
+records the detected threshold keeps. Each generated site-year
+(``fluxpart.scenarios.generate``) is checked with the fixed threshold set to its planted
+one (the site's own, known truth: it must not be named as too high) and to 2.5 times it
+(a threshold of another site or a slip). Night: the sun below the horizon. Not collected
+by pytest; prints figures and asserts nothing. Usage::
+
+    OMP_NUM_THREADS=1 PYTHONPATH=. .venv/bin/python tests/benchmarks/bench_ustar_fixed_high.py --sites 20
+"""
+
+from __future__ import annotations
+
+import argparse
+import warnings
+
+from fluxpart import Config, scenarios
+from fluxpart.solar import potential_radiation
+from fluxpart.ustar import CANOPY_FLOORS
+from fluxpart.ustar_fixed import fixed_threshold_note
+
+FACTORS = (1.0, 2.5)
+
+
+def main(argv=None) -> int:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--sites", type=int, default=20, help="scenarios.generate seeds")
+    options = parser.parse_args(argv)
+    warnings.simplefilter("ignore")
+    named = {factor: 0 for factor in FACTORS}
+    for seed in range(options.sites):
+        site_year = scenarios.generate(seed)
+        frame, site = site_year.frame, site_year.site
+        planted = float(site_year.scenario.parameters["ustar_threshold"])
+        interval = int(round((frame.index[1] - frame.index[0]).total_seconds() / 60.0))
+        night = potential_radiation(frame.index, site.latitude, site.longitude,
+                                    site.utc_offset, interval_minutes=interval) <= 0.0
+        found = []
+        for factor in FACTORS:
+            note = fixed_threshold_note(
+                frame.index, frame["nee"].to_numpy(), frame["ustar"].to_numpy(),
+                frame["tair"].to_numpy(), night, site.latitude, factor * planted, Config(),
+                CANOPY_FLOORS[site.canopy])
+            hit = note is not None and "far above" in note
+            named[factor] += hit
+            found.append(hit)
+        print(f"scenarios {seed:3d} planted {planted:.3f} " + "  ".join(
+            f"x{factor:g} {'named' if hit else '-'}" for factor, hit in zip(FACTORS, found, strict=True)),
+            flush=True)
+    print(f"\n{options.sites} site-years: named as too high " + ", ".join(
+        f"x{factor:g} {named[factor]}" for factor in FACTORS) + " (x1: false alarms)")
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

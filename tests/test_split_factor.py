@@ -1,0 +1,50 @@
+"""The factor of a unit changed within the record, measured at the jump (round mistakes41).
+
+Unit factors: CO2 44.009 and C 12.011 g mol-1 (IUPAC standard atomic weights (m)), so mg
+CO2 m-2 s-1 is 1000 / 44.009 = 22.72 µmol m-2 s-1 and g C m-2 per 30-min record is
+1e6 / 12.011 / 1800 = 46.25 µmol m-2 s-1.
+"""
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.io import _unit_factors
+from fluxpart.split_factor import jump_factor, unit_of_factor
+
+
+def _flux(days=120, seed=0):
+    """A half-hourly flux of a steady mid-season [µmol m-2 s-1]: a daytime uptake of
+    20 and a night release of 4, with random error 1 (invented, known truth)."""
+    starts = pd.date_range("2021-06-01", periods=days * 48, freq="30min")
+    hour = np.asarray(starts.hour + starts.minute / 60.0)
+    day = np.clip(np.sin((hour - 6.0) / 12.0 * np.pi), 0.0, None)
+    noise = np.random.default_rng(seed).normal(0.0, 1.0, starts.size)
+    return starts, 4.0 - 24.0 * day + noise
+
+
+def test_unit_factors_are_the_molar_masses():
+    factors = _unit_factors("nee", None, 30)
+    assert factors["mg CO2 m-2 s-1"] == pytest.approx(1000.0 / 44.009, rel=1e-4)
+    assert factors["g C m-2"] == pytest.approx(1e6 / 12.011 / 1800.0, rel=1e-4)
+    assert "umol m-2 s-1" not in factors and "µmol m-2 s-1" not in factors
+
+
+@pytest.mark.parametrize("unit", ["mg CO2 m-2 s-1", "g C m-2"])
+def test_jump_names_the_unit_of_its_factor(unit):
+    starts, flux = _flux()
+    factors = _unit_factors("nee", None, 30)
+    change = int(np.flatnonzero(starts == pd.Timestamp("2021-07-17"))[0])
+    written = flux.copy()
+    written[change:] /= factors[unit]
+    # the reader's split lies at the next month start, the change a fortnight before it
+    cut = int(np.flatnonzero(starts == pd.Timestamp("2021-08-01"))[0])
+    factor, at = jump_factor(written, starts, cut)
+    assert factor == pytest.approx(factors[unit], rel=0.25)
+    assert abs((at - pd.Timestamp("2021-07-17")).days) <= 2
+    assert unit_of_factor(factor, factors) == unit
+
+
+def test_a_factor_between_the_units_names_neither():
+    factors = _unit_factors("nee", None, 30)
+    assert unit_of_factor(32.4, factors) is None      # the geometric midpoint
+    assert unit_of_factor(float("nan"), factors) is None
