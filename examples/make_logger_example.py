@@ -74,7 +74,7 @@ def write_logger_example(directory, seed=3, frame=None) -> Path:
     columns = {
         "Date": dates, "Time": times,
         "co2_turb": _text(turbulent, 3), "co2_store": _text(storage, 3),
-        "PPFD_in": _text(frame["rg"].to_numpy() * PPFD_PER_RG, 2),
+        "PAR_in": _text(frame["rg"].to_numpy() * PPFD_PER_RG, 2),
         "T_air": _text(frame["tair"].to_numpy(), 2), "RH": _text(frame["rh"].to_numpy(), 1),
         "u_star": _text(frame["ustar"].to_numpy(), 3), "T_soil": _text(frame["tsoil"].to_numpy(), 2),
         "QC_flux": quality.astype(str), "QC_irga": analyser.astype(str),
@@ -121,7 +121,7 @@ flag_accept = [0, 1]                 # QC_flux 1 = good, lower class; QC_irga mu
 [input.columns]
 nee = "co2_turb"
 storage = "co2_store"                # added to nee
-ppfd = "PPFD_in"                     # converted to rg
+ppfd = "PAR_in"                     # converted to rg
 tair = "T_air"
 rh = "RH"                            # vpd derived from rh and tair
 ustar = "u_star"

@@ -4587,8 +4587,8 @@ def _near(name: str, options: list, taken=()) -> str:
                 "quotes (those are double quotes, \"...\"): remove the single quotes in a "
                 "copy of the file)")
     # the name with a prefix or suffix joined by "_", "-", ".", ":" or a blank (a site
-    # code or logger name before each column name, "QMG_fc" for "fc"; layouts31: the
-    # file's columns were listed, none suggested)
+    # code or logger name before each column name, "QMG_logger1_co2_flux" for "co2_flux";
+    # layouts31: the file's columns were listed, none suggested)
     joined = [o for o in free if len(key) >= 2 and (
         re.fullmatch(r".+[_\-.: ]" + re.escape(key), o.strip().casefold())
         or re.fullmatch(re.escape(key) + r"[_\-.: ].+", o.strip().casefold()))]
@@ -4599,9 +4599,9 @@ def _near(name: str, options: list, taken=()) -> str:
             or [o for o in free if o.strip().casefold() == key])
     close = same[:1] or difflib.get_close_matches(name, free, n=1, cutoff=0.6)
     if close and not same:
-        # columns as near as the nearest (TS_1, TS_2, TS_3 for "TS": soil temperatures at
-        # several depths) are all named, in file order: the nearest alone was the last in
-        # alphabetical order, a choice the file does not make
+        # columns as near as the nearest (t_soil_1, t_soil_2, t_soil_3 for "t_soil": soil
+        # temperatures at several depths) are all named, in file order: the nearest alone
+        # was the last in alphabetical order, a choice the file does not make
         def score(option):
             return difflib.SequenceMatcher(None, name, option).ratio()
         best = score(close[0])
@@ -4611,9 +4611,9 @@ def _near(name: str, options: list, taken=()) -> str:
                     + "? as near as each other: map the one you mean)")
     if len(joined) > 1 and not same:
         # several columns carry the name with another prefix or suffix (a profile's
-        # heights, tair_2m / tair_10m / tair_30m; two analysers, fc_open / fc_closed):
-        # the nearest by difflib was the shortest, a choice the file does not make and
-        # one that moves the budget (layouts34), so every one is named
+        # heights, tair_2m / tair_10m / tair_30m; two analysers, co2_flux_open /
+        # co2_flux_closed): the nearest by difflib was the shortest, a choice the file
+        # does not make and one that moves the budget (layouts34), so every one is named
         shown = joined[:6] + [c for c in close if c not in joined]
         return (" (did you mean one of " + ", ".join(repr(o) for o in shown)
                 + f"? {len(joined)} columns carry the name with another prefix or suffix "

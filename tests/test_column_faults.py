@@ -239,8 +239,8 @@ def test_rg_left_blank_in_the_dark_is_named():
     # a driver gap (the example's daytime GPP NaN, named only as unfilled Rg)
     nee, rg, potential = light_record()
     blank = np.where(rg < 5.0, np.nan, rg)
-    text = rg_blank_in_the_dark(blank, potential, columns={"rg": "sw_in"})
-    assert text is not None and "'sw_in'" in text and "missing in 100% of the" in text
+    text = rg_blank_in_the_dark(blank, potential, columns={"rg": "sw_down"})
+    assert text is not None and "'sw_down'" in text and "missing in 100% of the" in text
     index = pd.date_range("2021-03-01", periods=nee.size, freq=f"{STEP}min")
     frame = pd.DataFrame({"rg": blank}, index=index)
     assert [f.stage for f in _column_faults(frame, potential, STEP)] == ["input (rg dark)"]
@@ -375,8 +375,8 @@ def test_vpd_written_from_the_same_temperature_is_quiet():
 def test_air_temperature_an_hour_late_against_the_humidity_is_named():
     air, rh, vpd = humidity_record()
     late = np.concatenate([[np.nan, np.nan], air[:-2]])
-    text = tair_lag(late, rh, vpd, STEP, columns={"tair": "ta", "vpd": "vpd_k", "rh": "hum"})
-    assert text is not None and "2 record(s) (60 min) later" in text and "'ta'" in text
+    text = tair_lag(late, rh, vpd, STEP, columns={"tair": "t_air", "vpd": "vpd_k", "rh": "hum"})
+    assert text is not None and "2 record(s) (60 min) later" in text and "'t_air'" in text
 
 
 def test_air_temperature_of_another_sensor_is_quiet():
@@ -1090,8 +1090,8 @@ def test_rg_shaded_for_part_of_the_day_is_named(hours, half):
     mast); the sun's path is symmetric about solar noon (Iqbal 1983 (m)), so the shaded
     half's clear sky falls to about half of the other's at the same sun height."""
     rg, potential, index = _sky(1, 0.5, hours)
-    text = shaded_rg(rg, potential, index, {"rg": "SW_in"})
-    assert text is not None and "'SW_in'" in text and f"the {half} reaches" in text
+    text = shaded_rg(rg, potential, index, {"rg": "SW_down"})
+    assert text is not None and "'SW_down'" in text and f"the {half} reaches" in text
     first, last = (float(v) for v in re.search(
         r"between ([\d.]+) and ([\d.]+) h", text).groups())
     assert hours[0] - 0.5 <= first and last <= hours[1]

@@ -39,7 +39,7 @@ from fluxpart.variables import vpd_from_rh
 
 UNITS = load_reference("units")
 FORMAT = "%Y-%m-%d %H:%M"
-MAPPING = {"nee": "co2_flux", "rg": "sw_in", "tair": "t_air", "vpd": "vpd_air",
+MAPPING = {"nee": "co2_flux", "rg": "sw_down", "tair": "t_air", "vpd": "vpd_air",
            "ustar": "u_fric"}
 
 
@@ -51,7 +51,7 @@ def _records(periods=96, start="2021-06-01 00:00", minutes=30, seed=1):
     daylight = np.clip(np.sin((hour - 6) / 12 * np.pi), 0, None)
     return pd.DataFrame({
         "co2_flux": np.round(3 - 15 * daylight + rng.normal(0, 1.5, periods), 3),
-        "sw_in": np.round(800 * daylight, 1),
+        "sw_down": np.round(800 * daylight, 1),
         "t_air": np.round(12 + 8 * daylight + rng.normal(0, 0.3, periods), 2),
         "vpd_air": np.round(2 + 14 * daylight, 2),
         "u_fric": np.round(rng.uniform(0.05, 0.8, periods), 3),
@@ -81,7 +81,7 @@ def _site_toml(tmp_path, body_input="", site="", extra="", csv="tower.csv"):
         f"{site}\n"
         f"[input]\npath = \"{csv}\"\ntime_column = \"stamp\"\ntime_format = \"{FORMAT}\"\n"
         f"time_marks = \"end\"\nmissing = [-9999, \"NA\"]\n{body_input}\n"
-        "[input.columns]\nnee = \"co2_flux\"\nrg = \"sw_in\"\ntair = \"t_air\"\n"
+        "[input.columns]\nnee = \"co2_flux\"\nrg = \"sw_down\"\ntair = \"t_air\"\n"
         "vpd = \"vpd_air\"\nustar = \"u_fric\"\n"
         f"{extra}\n[processing]\nseed = 4\n"
     )
@@ -384,7 +384,7 @@ def test_read_site_config_and_read_input(tmp_path):
                                   r"you mean 'ustar'"),
     # fresh-eyes campaign: the case slip got the whole list twice, the misplaced or misspelt
     # table a list of 'settings'
-    ("columns", "USTAR = \"x\"\n", r"USTAR is not a canonical variable; did you mean 'ustar'\? "
+    ("columns", "VPD = \"x\"\n", r"VPD is not a canonical variable; did you mean 'vpd'\? "
                                    r"\(names are case-sensitive\)$"),
     ("top", "[units]\nvpd = \"kPa\"\n", r"the table \[units\] belongs under \[input\]: write "
                                       r"it as \[input.units\]"),
@@ -560,7 +560,7 @@ def test_empty_file_and_header_only(tmp_path):
     with pytest.raises(InputFileError, match="empty.csv.*is empty"):
         _read(empty)
     header = tmp_path / "header.csv"
-    header.write_text("stamp,co2_flux,sw_in,t_air,vpd_air,u_fric\n")
+    header.write_text("stamp,co2_flux,sw_down,t_air,vpd_air,u_fric\n")
     with pytest.raises(InputFileError, match="header.csv.*no records"):
         _read(header)
 
@@ -586,7 +586,7 @@ def test_required_variable_not_mapped(tmp_path):
     """A required variable neither mapped nor present by name is a MissingColumnError."""
     path = _write(tmp_path / "t.csv", _records())
     mapping = {k: v for k, v in MAPPING.items() if k != "rg"}
-    with pytest.raises(MissingColumnError, match=r"\[input.columns\] rg is not mapped.*'sw_in'"):
+    with pytest.raises(MissingColumnError, match=r"\[input.columns\] rg is not mapped.*'sw_down'"):
         _read(path, columns=mapping)
     mapping = {k: v for k, v in MAPPING.items() if k != "vpd"}
     with pytest.raises(MissingColumnError, match=r"vpd is not mapped.*or map rh"):
@@ -595,7 +595,7 @@ def test_required_variable_not_mapped(tmp_path):
 
 def test_time_column_missing(tmp_path):
     """A wrong time column names [input] time_column."""
-    path = _write(tmp_path / "t.csv", _records(), column="TIMESTAMP")
+    path = _write(tmp_path / "t.csv", _records(), column="logger_stamp")
     with pytest.raises(MissingColumnError, match=r'\[input\] time_column = "stamp"'):
         _read(path)
 
@@ -722,7 +722,7 @@ def test_decimal_comma_hint(tmp_path):
     out = records.copy()
     out.insert(0, "stamp", _records().index.strftime(FORMAT))
     out.to_csv(path, index=False, sep=";")
-    with pytest.raises(InputFileError, match=r"'sw_in' \(rg\): line 4 .*decimal comma.*"
+    with pytest.raises(InputFileError, match=r"'sw_down' \(rg\): line 4 .*decimal comma.*"
                                              r"decimal = \",\""):
         _read(path, delimiter=";")
 
@@ -836,7 +836,7 @@ def test_cold_dry_winter_is_legitimate(tmp_path):
     rng = np.random.default_rng(3)
     records["t_air"] = np.round(rng.uniform(-35, -15, 480), 2)
     records["vpd_air"] = np.round(rng.uniform(0.02, 0.9, 480), 3)
-    records["sw_in"] = np.round(np.clip(records["sw_in"] / 8, 0, None), 1)
+    records["sw_down"] = np.round(np.clip(records["sw_down"] / 8, 0, None), 1)
     records["co2_flux"] = np.round(rng.normal(0.4, 0.3, 480), 3)
     frame, report = _read(_write(tmp_path / "t.csv", records))
     # near -25 °C es is about 0.8 hPa (CRC/WMO Magnus (m)), so vpd/es spans most of 0..1
@@ -1128,7 +1128,7 @@ def test_glob_matching_the_site_config_is_refused_naming_it(tmp_path):
     assert read_site_config(_site_toml(tmp_path, csv="*.csv")).input_paths[0].name == "tower.csv"
 
 
-@pytest.mark.parametrize("content", ["", "\n\n", "stamp,co2_flux,sw_in,t_air,vpd_air,u_fric\n"])
+@pytest.mark.parametrize("content", ["", "\n\n", "stamp,co2_flux,sw_down,t_air,vpd_air,u_fric\n"])
 def test_empty_file_among_several_is_skipped_and_named(tmp_path, content):
     """A 0-byte, blank or header-only file in a glob (a logger file opened as the power
     failed) is skipped with a warning naming it; the others read as without it (robustness
@@ -1552,7 +1552,7 @@ def test_flux_holding_storage_already_is_named_when_storage_is_added(tmp_path,
     flux = nee if already_included else turbulent
     records = pd.DataFrame({
         "co2_turb": np.round(flux + rng.normal(0, 1.0, nee.size), 3),
-        "sc": np.round(storage, 3), "sw_in": np.round(800 * light, 1),
+        "sc": np.round(storage, 3), "sw_down": np.round(800 * light, 1),
         "t_air": np.round(12 + 8 * light, 2), "vpd_air": np.round(2 + 14 * light, 2),
         "u_fric": np.round(0.1 + 0.5 * vented, 3)}, index=starts)
     _, report = _read(_write(tmp_path / "t.csv", records),
@@ -1591,13 +1591,13 @@ def test_storage_column_without_values_is_named(tmp_path):
 @pytest.mark.parametrize(("empty", "mapping", "named"), [
     ("par", {"rg": None, "ppfd": "par"}, r"rg .*the ppfd column 'par' it is converted from"),
     ("rh", {"vpd": None, "rh": "rh"}, r"vpd .*derived from rh \('rh'\) and tair \('t_air'\)"),
-    ("sw_in", {}, r"rg .*column 'sw_in' has no value")])
+    ("sw_down", {}, r"rg .*column 'sw_down' has no value")])
 def test_required_variable_without_values_names_its_file_columns(tmp_path, empty, mapping,
                                                                   named):
     """Rg from an empty PPFD column, VPD from an empty RH column: the error names the file
     column (it named 'rg' or 'vpd', which the file does not have)."""
     records = _records()
-    records["par"] = records["sw_in"] * 2.1
+    records["par"] = records["sw_down"] * 2.1
     records["rh"] = 50.0
     records[empty] = -9999
     columns = {k: v for k, v in (MAPPING | mapping).items() if v is not None}
@@ -1609,7 +1609,7 @@ def test_ppfd_converted_to_rg(tmp_path):
     """PPFD mapped without rg: rg = ppfd / 2.10 µmol J-1 (0.46 x 4.57, McCree 1972 (m))."""
     records = _records()
     twin = records.copy()
-    records["par"] = records.pop("sw_in") * 2.1022
+    records["par"] = records.pop("sw_down") * 2.1022
     mapping = {k: v for k, v in MAPPING.items() if k != "rg"} | {"ppfd": "par"}
     frame, report = _read(_write(tmp_path / "t.csv", records), columns=mapping)
     np.testing.assert_allclose(frame["rg"], _plain(tmp_path, twin)["rg"], rtol=1e-9)
@@ -1623,7 +1623,7 @@ def test_undeclared_missing_code_in_ppfd_is_named(tmp_path):
     the file's value, -7999, which is what [input] missing must hold.
     """
     records = _records(periods=2000)
-    records["par"] = records.pop("sw_in") * 2.1022
+    records["par"] = records.pop("sw_down") * 2.1022
     records.iloc[10:30, records.columns.get_loc("par")] = -7999
     mapping = {k: v for k, v in MAPPING.items() if k != "rg"} | {"ppfd": "par"}
     _, report = _read(_write(tmp_path / "t.csv", records), columns=mapping, missing=(-9999,))
@@ -1701,7 +1701,7 @@ def _climate(kind, days=10, seed=5):
     respiration = 0.3 + 0.15 * np.exp(0.07 * tair) * (1 if uptake else 0.3)
     nee = respiration + uptake * (clouds / 0.8) * 2 * light / (1 + light)
     nee = nee + rng.laplace(0, 0.5 + 0.1 * np.abs(nee), len(starts)) / np.sqrt(2)
-    records = pd.DataFrame({"co2_flux": np.round(nee, 3), "sw_in": np.round(rg, 1),
+    records = pd.DataFrame({"co2_flux": np.round(nee, 3), "sw_down": np.round(rg, 1),
                             "t_air": np.round(tair, 2), "vpd_air": np.round(vpd, 3),
                             "u_fric": np.round(rng.uniform(0.05, 0.8, len(starts)), 3),
                             "rel_hum": np.round(rh, 1)}, index=starts)
@@ -1782,9 +1782,9 @@ def test_rg_in_kw_or_mj_refused(tmp_path, kind, unit, factor):
     with that unit it gives the W m-2 record back."""
     records, site = _climate(kind)
     original = _plain(tmp_path, records, site=site)
-    records["sw_in"] = (records["sw_in"] * factor).round(6)
+    records["sw_down"] = (records["sw_down"] * factor).round(6)
     path = _write(tmp_path / "t.csv", records)
-    with pytest.raises(ImplausibleValueError, match=rf"'sw_in' \(rg.*rg = \"{unit}\""):
+    with pytest.raises(ImplausibleValueError, match=rf"'sw_down' \(rg.*rg = \"{unit}\""):
         _read(path, site=site)
     frame, _ = _read(path, site=site, units={"rg": unit})
     np.testing.assert_allclose(frame["rg"], original["rg"], atol=1.0)
@@ -1850,8 +1850,8 @@ def test_ppfd_mapped_as_rg_refused(tmp_path):
     """PPFD (about 2.1 µmol J-1 times Rg) mapped as rg exceeds the top-of-atmosphere
     radiation with the sun high, which global radiation cannot: refused, naming ppfd."""
     records, site = _climate("grassland")
-    records["sw_in"] = (records["sw_in"] * 2.1).round(1)
-    with pytest.raises(ImplausibleValueError, match=r"'sw_in' \(rg.*PPFD.*map the column as "
+    records["sw_down"] = (records["sw_down"] * 2.1).round(1)
+    with pytest.raises(ImplausibleValueError, match=r"'sw_down' \(rg.*PPFD.*map the column as "
                                                     r"ppfd"):
         _read(_write(tmp_path / "t.csv", records), site=site)
 
@@ -1988,7 +1988,7 @@ def test_completed_overlap_of_three_files_counts_stamps_and_names_the_first(tmp_
     first one's three lines (review round nine)."""
     records = _records(periods=200)
     parts = [records.iloc[:130].copy(), records.iloc[90:150].copy(), records.iloc[100:].copy()]
-    for part, column in zip(parts, ("co2_flux", "sw_in", "t_air"), strict=True):
+    for part, column in zip(parts, ("co2_flux", "sw_down", "t_air"), strict=True):
         part.loc[records.index[110:120], column] = np.nan
     paths = [_write(tmp_path / f"{name}.csv", part) for name, part in zip("abc", parts, strict=True)]
     frame, report = _read(paths[::-1])

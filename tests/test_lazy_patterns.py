@@ -29,7 +29,7 @@ def test_import_compiles_no_pattern_and_a_simple_file_few():
 def test_lazy_patterns_find_what_re_compile_finds():
     texts = ["Timestamps (UTC+2)", "time zone: Europe/Berlin", "period ending timestamps",
              "Mittelwerte der vorangegangenen 30 Minuten", "fin de la période",
-             "TIMESTAMP_END CET", "Date/time: GMT", "interval start", "clock = UTC-05:00",
+             "stamp_end CET", "Date/time: GMT", "interval start", "clock = UTC-05:00",
              "utc_offset = +1", "nothing to see", "début de l'intervalle"]
     patterns = _lazy_patterns()
     assert len(patterns) >= 20

@@ -344,7 +344,8 @@ def test_column_types_of_the_caller_do_not_reach_the_tables(tmp_path):
 def test_frames_with_other_names_or_settings_are_refused_naming_the_fix():
     """Review 6, each once a traceback or an empty listing: the columns a frame has are
     named when required ones are missing (they were dropped as non-canonical first, so
-    ``NEE``..``USTAR`` gave "the frame has: " and nothing), letter case named as the fix;
+    the canonical names in capitals gave "the frame has: " and nothing), letter case named
+    as the fix;
     two-level column labels refused as such; a dict as config is a ConfigError, not an
     AttributeError (pandas ``DataFrame.rename(columns=str.upper)`` and ``MultiIndex`` are
     the reference frames; common practice)."""

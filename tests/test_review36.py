@@ -11,7 +11,7 @@ import pytest
 
 from fluxpart.io import read_table
 
-MAPPING = {"nee": "co2_flux", "rg": "sw_in", "tair": "t_air", "vpd": "vpd_air",
+MAPPING = {"nee": "co2_flux", "rg": "sw_down", "tair": "t_air", "vpd": "vpd_air",
            "ustar": "u_fric"}
 
 
@@ -25,7 +25,7 @@ def _file(path, marks, minutes=30, periods=96):
     pd.DataFrame({
         "stamp": (starts + pd.Timedelta(minutes=shift)).strftime("%Y-%m-%d %H:%M"),
         "co2_flux": np.round(3 - 15 * daylight + rng.normal(0, 1.5, periods), 3),
-        "sw_in": np.round(800 * daylight, 1),
+        "sw_down": np.round(800 * daylight, 1),
         "t_air": np.round(12 + 8 * daylight, 2),
         "vpd_air": np.round(2 + 14 * daylight, 2),
         "u_fric": np.round(rng.uniform(0.05, 0.8, periods), 3),

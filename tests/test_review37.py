@@ -26,7 +26,7 @@ def _ppfd_file(path, days=30):
     rng = np.random.default_rng(37)
     fc = np.round(2.0 - ppfd / 200 + rng.normal(0, 0.4, ends.size), 3)
     ta = np.round(15 + 5 * np.sin((hour - 9) / 12 * np.pi), 2)
-    lines = ["stamp,fc,us,par,ta,vpd"] + [
+    lines = ["stamp,co2_flux,us,par,t_air,vpd"] + [
         f"{e:%Y-%m-%d %H:%M},{f:g},0.3,{p:g},{t:g},{5 + t / 3:.2f}"
         for e, f, p, t in zip(ends, fc, ppfd, ta, strict=True)]
     path.write_text("\n".join(lines) + "\n", encoding="utf-8")
@@ -34,7 +34,7 @@ def _ppfd_file(path, days=30):
 
 
 def _read(path, **options):
-    settings = {"columns": {"nee": "fc", "ustar": "us", "ppfd": "par", "tair": "ta",
+    settings = {"columns": {"nee": "co2_flux", "ustar": "us", "ppfd": "par", "tair": "t_air",
                             "vpd": "vpd"},
                 "time_column": "stamp", "time_format": "%Y-%m-%d %H:%M", "time_marks": "end",
                 "units": {"vpd": "hPa"}, "site": SITE} | options
@@ -133,12 +133,12 @@ def test_a_refused_nee_column_is_not_offered_its_own_code_as_the_other_columns_f
     zeros = int((values == 0).sum())
     assert zeros >= 100 and zeros > 0.05 * values.size
     assert 0.7 < zeros / (0.5 * int((np.abs(values) == 0.1).sum())) < 1.3
-    message = ordinary_code_message("nee", "fc", 0.0, values)
-    assert message is not None and "column 'fc' (nee)" in message
+    message = ordinary_code_message("nee", "co2_flux", 0.0, values)
+    assert message is not None and "column 'co2_flux' (nee)" in message
     assert "(e.g. nee = [0])" not in message
     assert "(e.g. rg = [0])" in message and "add nee = [0]" in message
     # any other column keeps the NEE example
-    other = ordinary_code_message("tair", "ta", 0.0, values)
+    other = ordinary_code_message("tair", "t_air", 0.0, values)
     assert "(e.g. nee = [0])" in other and "add tair = [0]" in other
 
 

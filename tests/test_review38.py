@@ -72,8 +72,9 @@ def _write(path, soil):
     ta = (soil + 2.0 + 3.0 * day).round(1)
     frame = pd.DataFrame({
         "time": ends.strftime("%Y-%m-%d %H:%M"),
-        "fc": (2.0 - 8.0 * day).round(2), "us": (0.3 + 0.1 * np.cos(np.arange(HOURS) / 9)).round(2),
-        "sw": (600 * day).round(1), "ta": ta,
+        "co2_flux": (2.0 - 8.0 * day).round(2),
+        "us": (0.3 + 0.1 * np.cos(np.arange(HOURS) / 9)).round(2),
+        "sw": (600 * day).round(1), "t_air": ta,
         "vpd": (0.4 * 0.61078 * np.exp(17.27 * ta / (ta + 237.3))).round(3),   # RH 60 %
         "ts5": soil})
     frame.to_csv(path, index=False)
@@ -85,7 +86,7 @@ def test_a_file_with_a_thaw_under_a_code_of_zero_is_refused(tmp_path):
     gives what it says."""
     soil = _soil(10)
     path = _write(tmp_path / "t.csv", soil)
-    settings = {"columns": {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta",
+    settings = {"columns": {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air",
                             "vpd": "vpd", "tsoil": "ts5"},
                 "time_column": "time", "time_format": "%Y-%m-%d %H:%M", "time_marks": "end",
                 "units": {"vpd": "kPa"},

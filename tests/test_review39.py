@@ -230,9 +230,9 @@ def test_a_time_format_of_another_layout_names_the_one_every_stamp_reads_under(
     fmt = hint.strip('"')
     assert all(datetime.strptime(stamp, fmt) for stamp in stamps)    # the outside reading
     path = tmp_path / "tower.csv"
-    path.write_text("stamp,co2_flux,sw_in,t_air,vpd_air,u_fric\n" + "".join(
+    path.write_text("stamp,co2_flux,sw_down,t_air,vpd_air,u_fric\n" + "".join(
         f"{stamp},1.0,0.0,5.0,2.0,0.3\n" for stamp in stamps), encoding="utf-8")
-    columns = {"nee": "co2_flux", "rg": "sw_in", "tair": "t_air", "vpd": "vpd_air",
+    columns = {"nee": "co2_flux", "rg": "sw_down", "tair": "t_air", "vpd": "vpd_air",
                "ustar": "u_fric"}
     with pytest.raises(TimestampError) as refused:
         read_table(path, columns=columns, time_column="stamp", time_format=written,
@@ -247,10 +247,10 @@ def test_stamps_that_read_day_first_and_month_first_get_no_guess(tmp_path):
     from fluxpart.io import read_table
 
     path = tmp_path / "tower.csv"
-    path.write_text("stamp,co2_flux,sw_in,t_air,vpd_air,u_fric\n"
+    path.write_text("stamp,co2_flux,sw_down,t_air,vpd_air,u_fric\n"
                     "02/03/2013 01:00,1.0,0.0,5.0,2.0,0.3\n"
                     "02/03/2013 02:00,1.0,0.0,5.0,2.0,0.3\n", encoding="utf-8")
-    columns = {"nee": "co2_flux", "rg": "sw_in", "tair": "t_air", "vpd": "vpd_air",
+    columns = {"nee": "co2_flux", "rg": "sw_down", "tair": "t_air", "vpd": "vpd_air",
                "ustar": "u_fric"}
     with pytest.raises(TimestampError) as refused:
         read_table(path, columns=columns, time_column="stamp",

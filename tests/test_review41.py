@@ -17,7 +17,7 @@ from fluxpart.io import read_table
 from fluxpart.site import Site
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-COLUMNS = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd",
+COLUMNS = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd",
            "nee_flag": "qc"}
 
 
@@ -35,7 +35,7 @@ def test_a_flag_bad_where_nee_is_missing_is_judged_over_the_records_with_nee(tmp
     each measured record whose flag is 0 (known truth)."""
     starts, records = _tower(periods=48 * 40)
     late = np.arange(len(records)) < int(0.95 * len(records))
-    records.loc[late, "fc"] = np.nan
+    records.loc[late, "co2_flux"] = np.nan
     qc = np.where(np.arange(len(records)) % 10 < 3, 1, 0)
     records["qc"] = np.where(late, 2, qc)
     records.to_csv(tmp_path / "a.csv", index=False)
@@ -64,10 +64,10 @@ def _with_note(tmp_path):
 
 
 def test_a_column_inserted_before_an_empty_last_column_stays_refused(tmp_path):
-    """A logger program inserted a column ("ts2") after "fc" from mid-file on, in a file
+    """A logger program inserted a column ("t_soil2") after "co2_flux" from mid-file on, in a file
     whose last column is always empty: every later line holds one field more and ends
     with the delimiter, as a delimiter closing each line would. layouts34 read it as a
-    closing delimiter, so every column after "fc" was read one to the left (us holding
+    closing delimiter, so every column after "co2_flux" was read one to the left (us holding
     the new column, sw holding us; the run then named unit mix-ups). Every earlier record
     ends with the delimiter too, so a closing one would end the later lines with two:
     the file is refused as a column added (known truth: the layout written). A closing

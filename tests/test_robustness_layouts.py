@@ -26,7 +26,7 @@ from fluxpart.errors import (
 from fluxpart.io import read_table
 from fluxpart.timestamps import check_isolated_stretch, infer_interval, parse_stamps
 
-MAPPING = {"nee": "co2_flux", "rg": "sw_in", "tair": "t_air", "vpd": "vpd_air",
+MAPPING = {"nee": "co2_flux", "rg": "sw_down", "tair": "t_air", "vpd": "vpd_air",
            "ustar": "u_fric"}
 
 
@@ -38,7 +38,7 @@ def _records(starts, seed=1):
     n = len(starts)
     return pd.DataFrame({
         "co2_flux": np.round(3 - 15 * daylight + rng.normal(0, 1.5, n), 3),
-        "sw_in": np.round(800 * daylight, 1),
+        "sw_down": np.round(800 * daylight, 1),
         "t_air": np.round(12 + 8 * daylight + rng.normal(0, 0.3, n), 2),
         "vpd_air": np.round(2 + 14 * daylight, 2),
         "u_fric": np.round(rng.uniform(0.05, 0.8, n), 3),
@@ -284,7 +284,7 @@ def test_header_of_a_changed_logger_program_midfile_is_named(tmp_path, change):
     elif change == "renamed":
         column = "stamp_end"
     else:
-        later = later[["sw_in", "co2_flux", "t_air", "vpd_air", "u_fric"]]
+        later = later[["sw_down", "co2_flux", "t_air", "vpd_air", "u_fric"]]
     second = tmp_path / "part2.csv"
     out = later.copy()
     out.insert(0, column, stamps[100:])
@@ -329,7 +329,7 @@ def test_flux_and_met_logger_files_of_one_period_are_joined(tmp_path):
     whole, _ = _read(_write(tmp_path / "whole.csv", records, stamps), columns=columns)
     flux = _write(tmp_path / "flux.csv", records[["co2_flux", "u_fric", "qc"]], stamps)
     outage = np.arange(480) >= 400                       # the met logger stops a day early
-    met = _write(tmp_path / "met.csv", records.loc[~outage, ["sw_in", "t_air", "vpd_air"]],
+    met = _write(tmp_path / "met.csv", records.loc[~outage, ["sw_down", "t_air", "vpd_air"]],
                  stamps[~outage])
     frame, report = _read([flux, met], columns=columns)
     expected = whole.copy()
@@ -348,8 +348,8 @@ def test_a_required_column_absent_for_a_period_is_still_refused(tmp_path):
     records = _records(starts)
     stamps = (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M")
     a = _write(tmp_path / "a.csv", records.iloc[:240], stamps[:240])
-    b = _write(tmp_path / "b.csv", records.iloc[240:].drop(columns="sw_in"), stamps[240:])
-    with pytest.raises(MissingColumnError, match=r"rg = \"sw_in\": the column is in .*a\.csv"
+    b = _write(tmp_path / "b.csv", records.iloc[240:].drop(columns="sw_down"), stamps[240:])
+    with pytest.raises(MissingColumnError, match=r"rg = \"sw_down\": the column is in .*a\.csv"
                        r"' but not in .*b\.csv'"):
         _read([a, b])
 
@@ -363,7 +363,7 @@ def test_last_value_cut_without_a_line_end_is_dropped(tmp_path, last, dropped):
     throughout (a logger writes each column with fixed decimals), so a shorter last
     value ending the file is dropped with a warning; a whole last line is kept."""
     starts = pd.date_range("2021-06-01 00:00", periods=96, freq="30min")
-    records = _records(starts)[["sw_in", "t_air", "vpd_air", "u_fric", "co2_flux"]]
+    records = _records(starts)[["sw_down", "t_air", "vpd_air", "u_fric", "co2_flux"]]
     records.iloc[-1, -1] = -2.345
     out = records.copy()
     out.insert(0, "stamp", (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M"))
@@ -539,7 +539,7 @@ def test_met_file_of_another_interval_beside_a_flux_file_is_named(tmp_path):
     stamps = (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M")
     flux = _write(tmp_path / "flux.csv", records[["co2_flux", "u_fric"]], stamps)
     fine = pd.date_range(starts[0], periods=480 * 3, freq="10min")
-    met = _write(tmp_path / "met.csv", _records(fine)[["sw_in", "t_air", "vpd_air"]],
+    met = _write(tmp_path / "met.csv", _records(fine)[["sw_down", "t_air", "vpd_air"]],
                  (fine + pd.Timedelta(minutes=10)).strftime("%Y-%m-%d %H:%M"))
     # since layouts17 the join names both files' intervals ("... met.csv' hold them every
     # 10 minutes"), as for an hourly met file beside half-hourly flux files

@@ -32,9 +32,9 @@ from fluxpart.site import Site
 from fluxpart.timestamps import parse_stamps
 from fluxpart.variables import reads_as_canonical, unit_spelling
 
-MAPPING = {"nee": "co2_flux", "rg": "sw_in", "tair": "t_air", "vpd": "vpd_air",
+MAPPING = {"nee": "co2_flux", "rg": "sw_down", "tair": "t_air", "vpd": "vpd_air",
            "ustar": "u_fric", "tsoil": "t_soil"}
-MET = ["sw_in", "t_air", "vpd_air", "t_soil"]
+MET = ["sw_down", "t_air", "vpd_air", "t_soil"]
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
 
 
@@ -46,7 +46,7 @@ def _records(starts, seed=1):
     n = len(starts)
     return pd.DataFrame({
         "co2_flux": np.round(3 - 15 * daylight + rng.normal(0, 1.5, n), 3),
-        "sw_in": np.round(800 * daylight, 1),
+        "sw_down": np.round(800 * daylight, 1),
         "t_air": np.round(12 + 8 * daylight + rng.normal(0, 0.3, n), 2),
         "vpd_air": np.round(2 + 14 * daylight, 2),
         "u_fric": np.round(rng.uniform(0.05, 0.8, n), 3),

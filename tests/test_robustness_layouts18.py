@@ -133,10 +133,10 @@ def _tower(periods=48 * 20, seed=4):
     day = np.clip(np.sin((hour - 6) / 12 * np.pi), 0, None)
     return starts, pd.DataFrame({
         "stamp": (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M"),
-        "fc": np.round(3 - 15 * day + rng.normal(0, 1.5, periods), 3),
+        "co2_flux": np.round(3 - 15 * day + rng.normal(0, 1.5, periods), 3),
         "us": np.round(rng.uniform(0.05, 0.8, periods), 3),
         "sw": np.round(800 * day, 1),
-        "ta": np.round(14 + 8 * day, 2),
+        "t_air": np.round(14 + 8 * day, 2),
         "vpd": np.round(2 + 14 * day, 2),
     })
 
@@ -145,7 +145,7 @@ def _read_pair(tmp_path, flux, met):
     flux.to_csv(tmp_path / "flux.csv", index=False)
     met.to_csv(tmp_path / "met.csv", index=False)
     return read_table([tmp_path / "flux.csv", tmp_path / "met.csv"],
-                      columns={"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta",
+                      columns={"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air",
                                "vpd": "vpd"},
                       time_column="stamp", time_format="%Y-%m-%d %H:%M", time_marks="end")
 
@@ -157,21 +157,21 @@ def test_two_loggers_sharing_a_column_that_disagrees_name_only_that_column(tmp_p
     to remove a copy of the overlap, which would remove NEE or the drivers. Now it names
     the column that disagrees and the fix; a plain overlap keeps its own fix."""
     starts, records = _tower()
-    flux = records[["stamp", "fc", "us", "ta"]].copy()
-    flux["ta"] = np.round(flux["ta"] + 0.3, 2)
-    met = records[["stamp", "sw", "ta", "vpd"]]
+    flux = records[["stamp", "co2_flux", "us", "t_air"]].copy()
+    flux["t_air"] = np.round(flux["t_air"] + 0.3, 2)
+    met = records[["stamp", "sw", "t_air", "vpd"]]
     with pytest.raises(DuplicateTimestampError, match=re.escape(
             "with different values (tair); 960 such stamp(s) in all: the files complete each "
             "other in nee, ustar, rg, vpd")) as caught:
         _read_pair(tmp_path, flux, met)
     assert "keep the column(s) of tair in one of them only" in str(caught.value)
     # the same sensor in both files: joined, every value as written
-    frame, _ = _read_pair(tmp_path, records[["stamp", "fc", "us", "ta"]], met)
-    assert np.array_equal(frame["tair"].to_numpy(), records["ta"].to_numpy())
-    assert np.array_equal(frame["nee"].to_numpy(), records["fc"].to_numpy())
+    frame, _ = _read_pair(tmp_path, records[["stamp", "co2_flux", "us", "t_air"]], met)
+    assert np.array_equal(frame["tair"].to_numpy(), records["t_air"].to_numpy())
+    assert np.array_equal(frame["nee"].to_numpy(), records["co2_flux"].to_numpy())
     # two copies of one file, one value edited: the plain overlap fix, the column named
     edited = records.copy()
-    edited.loc[5, "fc"] += 1.0
+    edited.loc[5, "co2_flux"] += 1.0
     with pytest.raises(DuplicateTimestampError, match=re.escape(
             "with different values (nee); 1 such stamp(s) in all: remove one copy of the "
             "overlap from a file")):
@@ -191,26 +191,27 @@ def test_units_lines_in_another_spelling_or_encoding_are_no_unit_change(
     C2 B0 (RFC 3629 (m))) were warned as "a unit changed during the record", a false
     alarm beside the real one (hPa to kPa, 1 kPa = 10 hPa by the SI prefixes)."""
     _, records = _tower(periods=48 * 30)
-    header = "stamp,fc,sw,ta,vpd,us"
+    header = "stamp,co2_flux,sw,t_air,vpd,us"
     first_units = "{stamp},µmol m-2 s-1,W m-2,°C,hPa,m s-1"
     halves = (records.iloc[:720], records.iloc[720:])
     for name, half, units, encoding in (("a.csv", halves[0], first_units, "latin-1"),
                                         ("b.csv", halves[1], second_units, "utf-8")):
-        rows = half[["stamp", "fc", "sw", "ta", "vpd", "us"]].astype(str).agg(",".join, axis=1)
+        rows = half[["stamp", "co2_flux", "sw", "t_air", "vpd", "us"]].astype(str).agg(
+            ",".join, axis=1)
         text = "\n".join([header, units.format(stamp="yyyy-mm-dd HH:MM"), *rows]) + "\n"
         if "\u00c2" in text:                       # the UTF-8 bytes of '°', as written
             text = text.replace("\u00c2\u00b0", "°")
         (tmp_path / name).write_bytes(text.encode(encoding))
     frame, report = read_table([tmp_path / "a.csv", tmp_path / "b.csv"],
-                               columns={"nee": "fc", "rg": "sw", "tair": "ta", "vpd": "vpd",
-                                        "ustar": "us"},
+                               columns={"nee": "co2_flux", "rg": "sw", "tair": "t_air",
+                                        "vpd": "vpd", "ustar": "us"},
                                time_column="stamp", time_format="%Y-%m-%d %H:%M",
                                time_marks="end", encoding="latin-1", rows_after_header=1)
     noted = [w for w in report.warnings if "lines under the header" in w]
     assert len(noted) == (1 if warned else 0)
     if warned:
         assert "'vpd' (vpd) has 'hPa' in" in noted[0] and "but 'kPa' in" in noted[0]
-    assert np.array_equal(frame["tair"].to_numpy(), records["ta"].to_numpy())
+    assert np.array_equal(frame["tair"].to_numpy(), records["t_air"].to_numpy())
 
 
 @pytest.mark.parametrize("folder, files, path", [
@@ -229,18 +230,18 @@ def test_brackets_in_folder_and_file_names_are_read_as_written(tmp_path, folder,
     parts = np.array_split(np.arange(len(records)), len(files))
     for name, rows in zip(files, parts, strict=True):
         (site / name).parent.mkdir(parents=True, exist_ok=True)
-        records.iloc[rows][["stamp", "fc", "us", "sw", "ta", "vpd"]].to_csv(site / name,
+        records.iloc[rows][["stamp", "co2_flux", "us", "sw", "t_air", "vpd"]].to_csv(site / name,
                                                                             index=False)
     (site / "site.toml").write_text(
         '[site]\nname = "x"\nlatitude = 49.3\nlongitude = 10.2\nutc_offset = 1.0\n'
         f'[input]\npath = "{path}"\ntime_column = "stamp"\n'
         'time_format = "%Y-%m-%d %H:%M"\ntime_marks = "end"\n'
-        '[input.columns]\nnee = "fc"\nrg = "sw"\ntair = "ta"\nvpd = "vpd"\nustar = "us"\n',
+        '[input.columns]\nnee = "co2_flux"\nrg = "sw"\ntair = "t_air"\nvpd = "vpd"\nustar = "us"\n',
         encoding="utf-8")
     config = read_site_config(site / "site.toml")
     assert sorted(config.input_paths) == sorted(site / name for name in files)
     frame, _ = config.read()
-    assert np.array_equal(frame["nee"].to_numpy(), records["fc"].to_numpy())
+    assert np.array_equal(frame["nee"].to_numpy(), records["co2_flux"].to_numpy())
 
 
 @pytest.mark.parametrize("later, proposed", [
@@ -278,13 +279,14 @@ def test_a_compressed_table_is_read_as_the_table_it_holds(tmp_path, kind):
     import tarfile
 
     _, records = _tower(periods=48 * 4)
-    text = records[["stamp", "fc", "us", "sw", "ta", "vpd"]].to_csv(index=False).encode()
+    text = records[["stamp", "co2_flux", "us", "sw", "t_air", "vpd"]].to_csv(index=False).encode()
     packer = {"gzip": gzip.compress, "bzip2": bz2.compress, "xz": lzma.compress}[kind]
-    options = {"columns": {"nee": "fc", "rg": "sw", "tair": "ta", "vpd": "vpd", "ustar": "us"},
+    options = {"columns": {"nee": "co2_flux", "rg": "sw", "tair": "t_air", "vpd": "vpd",
+                           "ustar": "us"},
                "time_column": "stamp", "time_format": "%Y-%m-%d %H:%M", "time_marks": "end"}
     (tmp_path / "tower.csv.packed").write_bytes(packer(text))
     frame, _ = read_table(tmp_path / "tower.csv.packed", **options)
-    assert np.array_equal(frame["nee"].to_numpy(), records["fc"].to_numpy())
+    assert np.array_equal(frame["nee"].to_numpy(), records["co2_flux"].to_numpy())
     (tmp_path / "cut.csv.packed").write_bytes(packer(text)[:-40])
     with pytest.raises(InputFileError, match=rf"cut.csv.packed' is {kind}-compressed but "
                        "cannot be decompressed"):
@@ -316,15 +318,15 @@ def test_a_utf32_file_with_its_mark_is_read(tmp_path, encoding):
     read as UTF-16 and refused with the fix encoding = "utf-16", which cannot read it.
     Now read by its mark (known-truth recovery: every value as written)."""
     _, records = _tower(periods=48 * 4)
-    text = records[["stamp", "fc", "us", "sw", "ta", "vpd"]].to_csv(index=False)
+    text = records[["stamp", "co2_flux", "us", "sw", "t_air", "vpd"]].to_csv(index=False)
     data = text.encode("utf-32") if encoding == "utf-32" else (
         b"\x00\x00\xfe\xff" + text.encode("utf-32-be"))
     (tmp_path / "t.csv").write_bytes(data)
     frame, _ = read_table(tmp_path / "t.csv",
-                          columns={"nee": "fc", "rg": "sw", "tair": "ta", "vpd": "vpd",
+                          columns={"nee": "co2_flux", "rg": "sw", "tair": "t_air", "vpd": "vpd",
                                    "ustar": "us"},
                           time_column="stamp", time_format="%Y-%m-%d %H:%M", time_marks="end")
-    assert np.array_equal(frame["nee"].to_numpy(), records["fc"].to_numpy())
+    assert np.array_equal(frame["nee"].to_numpy(), records["co2_flux"].to_numpy())
 
 
 def test_a_short_month_first_record_read_day_first_is_named():

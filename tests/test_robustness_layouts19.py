@@ -6,7 +6,8 @@ latin-1, and paths written in Windows form on another system.
 Outside facts, each named beside its check: Python's ``codecs`` (a general-purpose library):
 byte 0x96 is U+2013 EN DASH in cp1252 and the C1 control character U+0096 in latin-1
 (ISO 8859-1 leaves 0x80-0x9F to control codes (m)); ``difflib.SequenceMatcher`` scores
-"TS" against "TS_1", "TS_2" and "TS_3" alike (each 2 of 6 characters matched: 2 x 2 / 6);
+"t_soil" against "t_soil_1", "t_soil_2" and "t_soil_3" alike (each 6 of 14 characters
+matched: 2 x 6 / 14);
 FAT file systems write a file's length in its directory entry apart from its data
 clusters, so a power cut can leave a length whose last clusters hold zeros (common
 practice); a backslash is a character of a POSIX file name, not a separator (POSIX.1-2017,
@@ -27,7 +28,7 @@ from fluxpart.batch import read_sites_file
 from fluxpart.errors import ConfigError, ImplausibleValueError, InputFileError, MissingColumnError
 from fluxpart.io import read_site_config, read_table
 
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
 
 
 def _tower(periods=48 * 10, seed=5):
@@ -58,7 +59,7 @@ def test_a_file_ending_in_zero_bytes_is_read_up_to_them(tmp_path, zeros):
     frame, report = _read(tmp_path / "tail.csv")
     pd.testing.assert_frame_equal(frame, clean)
     assert list(frame.index) == list(starts)                  # known truth: the stamps
-    np.testing.assert_array_equal(frame["nee"], records["fc"])
+    np.testing.assert_array_equal(frame["nee"], records["co2_flux"])
     assert clean_report.warnings == ()
     assert len(report.warnings) == 1
     assert f"ends in {zeros} zero bytes (NUL) from line {len(records) + 2}" in report.warnings[0]
@@ -73,7 +74,7 @@ def test_zero_bytes_that_cut_a_line_drop_that_record_only(tmp_path):
     (tmp_path / "cut.csv").write_bytes(cut.encode() + b"\x00" * 4096)
     frame, report = _read(tmp_path / "cut.csv")
     assert list(frame.index) == list(starts[:-1])
-    np.testing.assert_array_equal(frame["tair"], records["ta"].iloc[:-1])
+    np.testing.assert_array_equal(frame["tair"], records["t_air"].iloc[:-1])
     assert len(report.warnings) == 1
     assert f"which cut line {len(records) + 1}" in report.warnings[0]
     assert "that record was dropped" in report.warnings[0]
@@ -100,7 +101,7 @@ def test_a_month_file_of_zero_bytes_only_is_skipped_among_files(tmp_path):
     (tmp_path / "q_03.csv").write_bytes(b"\x00" * 4096)
     frame, report = _read([tmp_path / f"q_0{month}.csv" for month in (1, 2, 3)])
     assert list(frame.index) == list(starts)
-    np.testing.assert_array_equal(frame["nee"], records["fc"])
+    np.testing.assert_array_equal(frame["nee"], records["co2_flux"])
     assert len(report.warnings) == 1
     assert "q_03.csv' holds only zero bytes: skipped" in report.warnings[0]
     with pytest.raises(InputFileError, match=r"holds only zero bytes \(NUL; 4096\)"):
@@ -108,26 +109,26 @@ def test_a_month_file_of_zero_bytes_only_is_skipped_among_files(tmp_path):
 
 
 def test_columns_as_near_as_each_other_are_all_named(tmp_path):
-    """Soil temperatures at three depths (TS_1, TS_2, TS_3) and ``tsoil = "TS"``: the
-    hint named only 'TS_3', the last in alphabetical order among equally near names (a
+    """Soil temperatures at three depths (t_soil_1, t_soil_2, t_soil_3) and ``tsoil = "t_soil"``:
+    the hint named only 't_soil_3', the last in alphabetical order among equally near names (a
     choice the file does not make: the deepest probe). Now all three are named. The
     scores are equal by difflib itself."""
-    ratios = {difflib.SequenceMatcher(None, "TS", name).ratio()
-              for name in ("TS_1", "TS_2", "TS_3")}
-    assert ratios == {2 * 2 / 6}                     # difflib: 2 matched of 2 + 4 characters
+    ratios = {difflib.SequenceMatcher(None, "t_soil", name).ratio()
+              for name in ("t_soil_1", "t_soil_2", "t_soil_3")}
+    assert ratios == {2 * 6 / 14}                    # difflib: 6 matched of 6 + 8 characters
     _, records = _tower()
-    records = records.assign(TS_1=records["ta"] - 2, TS_2=records["ta"] - 4,
-                             TS_3=records["ta"] - 6)
+    records = records.assign(t_soil_1=records["t_air"] - 2, t_soil_2=records["t_air"] - 4,
+                             t_soil_3=records["t_air"] - 6)
     records.to_csv(tmp_path / "t.csv", index=False)
     with pytest.raises(MissingColumnError,
-                       match=r"did you mean one of 'TS_1', 'TS_2', 'TS_3'\? as near as each "
-                             r"other: map the one you mean"):
-        _read(tmp_path / "t.csv", columns={**MAPPING, "tsoil": "TS"})
-    frame, _ = _read(tmp_path / "t.csv", columns={**MAPPING, "tsoil": "TS_2"})
-    np.testing.assert_allclose(frame["tsoil"], records["TS_2"])
+                       match=r"did you mean one of 't_soil_1', 't_soil_2', 't_soil_3'\? as near "
+                             r"as each other: map the one you mean"):
+        _read(tmp_path / "t.csv", columns={**MAPPING, "tsoil": "t_soil"})
+    frame, _ = _read(tmp_path / "t.csv", columns={**MAPPING, "tsoil": "t_soil_2"})
+    np.testing.assert_allclose(frame["tsoil"], records["t_soil_2"])
     # one nearest name is still offered alone
-    with pytest.raises(MissingColumnError, match=r"did you mean 'TS_2'\?\)"):
-        _read(tmp_path / "t.csv", columns={**MAPPING, "tsoil": "TS_22"})
+    with pytest.raises(MissingColumnError, match=r"did you mean 't_soil_2'\?\)"):
+        _read(tmp_path / "t.csv", columns={**MAPPING, "tsoil": "t_soil_22"})
 
 
 def test_a_cp1252_header_read_as_latin1_names_the_encoding(tmp_path):
@@ -138,7 +139,7 @@ def test_a_cp1252_header_read_as_latin1_names_the_encoding(tmp_path):
     assert b"\x96".decode("cp1252") == "\u2013"              # Python codecs: EN DASH
     assert codecs.decode(b"\x96", "latin-1") == "\x96"       # a C1 control character
     _, records = _tower()
-    records = records.rename(columns={"ta": "T_Luft_°C", "fc": "CO2–Fluss"})
+    records = records.rename(columns={"t_air": "T_Luft_°C", "co2_flux": "CO2–Fluss"})
     (tmp_path / "t.csv").write_bytes(records.to_csv(index=False).encode("cp1252"))
     columns = {**MAPPING, "tair": "T_Luft_°C", "nee": "CO2–Fluss"}
     with pytest.raises(MissingColumnError, match=r"holds the control character\(s\) U\+0096, "
@@ -161,10 +162,10 @@ time_format = "%Y-%m-%d %H:%M"
 time_marks = "end"
 
 [input.columns]
-nee = "fc"
+nee = "co2_flux"
 ustar = "us"
 rg = "sw"
-tair = "ta"
+tair = "t_air"
 vpd = "vpd"
 """
 
@@ -258,7 +259,7 @@ def test_rg_summed_over_each_record_is_not_called_ppfd(tmp_path):
     np.testing.assert_allclose(frame["rg"][bright], plain["rg"][bright], rtol=0.01)
 
 
-UNITS = {"stamp_end": "TS", "co2_exchange": "umol/m2/s", "solar_down": "W/m2",
+UNITS = {"stamp_end": "time", "co2_exchange": "umol/m2/s", "solar_down": "W/m2",
          "air_temp_c": "degC", "vpd_kpa": "kPa", "friction_velocity": "m/s",
          "soil_temp_5cm": "degC", "rel_humidity": "%", "qc_co2": "-"}
 
@@ -312,8 +313,8 @@ def test_a_met_file_stamped_at_another_point_of_the_interval_is_named(tmp_path, 
     that file to the others' records", which cannot help; now the offset is named with
     the one time_marks every file shares."""
     starts, records = _tower()
-    flux = records[["stamp", "fc", "us"]]
-    met = records[["stamp", "sw", "ta", "vpd"]].copy()
+    flux = records[["stamp", "co2_flux", "us"]]
+    met = records[["stamp", "sw", "t_air", "vpd"]].copy()
     met["stamp"] = (starts + pd.Timedelta(minutes=30 + minutes)).strftime("%Y-%m-%d %H:%M")
     flux.to_csv(tmp_path / "flux.csv", index=False)
     met.to_csv(tmp_path / "met.csv", index=False)

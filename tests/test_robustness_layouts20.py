@@ -19,7 +19,7 @@ from test_robustness_layouts18 import _tower as _tower_records
 from fluxpart.errors import ImplausibleValueError, InputFileError, TimestampError
 from fluxpart.io import read_table
 
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
 
 
 def _tower(periods=48 * 10, seed=6):
@@ -139,14 +139,14 @@ def test_database_export_layouts_read_as_written(tmp_path):
     frame.columns = [name.upper() for name in frame.columns]
     frame["STAMP"] = (starts + pd.Timedelta(minutes=30)).strftime("%Y-%m-%d %H:%M:%S.000")
     frame = frame.astype(object)
-    frame.loc[3, "FC"] = "NULL"
+    frame.loc[3, "CO2_FLUX"] = "NULL"
     (tmp_path / "db.csv").write_text(frame.to_csv(index=False, quoting=csv.QUOTE_ALL))
     read, report = read_table(
         tmp_path / "db.csv", columns={key: name.upper() for key, name in MAPPING.items()},
         time_column="STAMP", time_format="%Y-%m-%d %H:%M:%S.%f", time_marks="end",
         missing=["NULL"])
     assert list(read.index) == list(starts)
-    expected = records["fc"].to_numpy(dtype=float).copy()
+    expected = records["co2_flux"].to_numpy(dtype=float).copy()
     expected[3] = np.nan
     np.testing.assert_array_equal(read["nee"].to_numpy(), expected)
     np.testing.assert_array_equal(read["rg"].to_numpy(), records["sw"].to_numpy())
@@ -184,14 +184,14 @@ def test_accounting_negatives_are_named_not_offered_as_missing_codes(tmp_path, f
     (the daytime uptake). Now named as negative numbers with the fix; still refused."""
     _, records = _tower()
     frame = records.astype(object)
-    frame["fc"] = [(f"({-v})" if form == "parentheses" else f"{-v}-") if v < 0 else str(v)
-                   for v in records["fc"]]
+    frame["co2_flux"] = [(f"({-v})" if form == "parentheses" else f"{-v}-") if v < 0 else str(v)
+                   for v in records["co2_flux"]]
     (tmp_path / "report.csv").write_text(frame.to_csv(index=False))
     with pytest.raises(InputFileError) as caught:
         _read(tmp_path / "report.csv")
     message = str(caught.value)
     assert len(message.splitlines()) == 1
-    assert f"{int((records['fc'] < 0).sum())} such cell(s)" in message
+    assert f"{int((records['co2_flux'] < 0).sum())} such cell(s)" in message
     assert "a negative number in an accounting or business format" in message
     assert "add it to [input] missing" not in message
 
@@ -234,7 +234,7 @@ def test_an_hhmm_time_column_under_a_colon_format_names_the_format(tmp_path):
         read_table(tmp_path / "hhmm.csv", time_format="%Y-%m-%d %H:%M", **kwargs)
     read, report = read_table(tmp_path / "hhmm.csv", time_format="%Y-%m-%d %H%M", **kwargs)
     assert list(read.index) == list(starts)
-    np.testing.assert_array_equal(read["nee"].to_numpy(), records["fc"].to_numpy())
+    np.testing.assert_array_equal(read["nee"].to_numpy(), records["co2_flux"].to_numpy())
     assert report.warnings == ()
 
 
@@ -248,7 +248,8 @@ def test_exchanged_vpd_and_tair_columns_are_not_offered_pa(tmp_path):
     keeps its fix."""
     starts, records = _tower()
     header = ",".join(records.columns)
-    body = records[["stamp", "fc", "us", "sw", "vpd", "ta"]].to_csv(index=False, header=False)
+    body = records[["stamp", "co2_flux", "us", "sw", "vpd", "t_air"]].to_csv(index=False,
+                                                                             header=False)
     (tmp_path / "moved.csv").write_text(header + "\n" + body)
     with pytest.raises(ImplausibleValueError) as caught:
         _read(tmp_path / "moved.csv")

@@ -21,7 +21,7 @@ from fluxpart.errors import (
 )
 from fluxpart.io import read_table
 
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
 
 
 def _read(paths, **kwargs):
@@ -113,7 +113,7 @@ def test_title_blocks_of_one_length_read_as_the_plain_files(tmp_path):
     expected, _ = _read(plain)
     frame, _ = _read(blocked, rows_before_header=2)
     pd.testing.assert_frame_equal(frame, expected)
-    assert frame["nee"].to_numpy() == pytest.approx(records["fc"].to_numpy())
+    assert frame["nee"].to_numpy() == pytest.approx(records["co2_flux"].to_numpy())
 
 
 def _half_year(periods=48 * 180):
@@ -164,7 +164,7 @@ def test_nee_in_mg_co2_for_the_last_months_of_one_file_is_refused(tmp_path):
     unit changed."""
     records = _half_year()
     half = 48 * 90
-    records.loc[half:, "fc"] = (records.loc[half:, "fc"] * 0.044).round(4)
+    records.loc[half:, "co2_flux"] = (records.loc[half:, "co2_flux"] * 0.044).round(4)
     records.to_csv(tmp_path / "a.csv", index=False)
     with pytest.raises(ImplausibleValueError) as caught:
         _read(tmp_path / "a.csv")
@@ -182,7 +182,7 @@ def test_nee_in_one_unit_throughout_reads(tmp_path):
     records = _half_year()
     records.to_csv(tmp_path / "a.csv", index=False)
     frame, report = _read(tmp_path / "a.csv")
-    assert frame["nee"].to_numpy() == pytest.approx(records["fc"].to_numpy())
+    assert frame["nee"].to_numpy() == pytest.approx(records["co2_flux"].to_numpy())
     assert not any("two units" in warning for warning in report.warnings)
 
 
@@ -278,7 +278,7 @@ def test_overlapping_downloads_that_truly_differ_keep_their_fix(tmp_path):
     shift: the fix stays to remove one copy of the overlap."""
     _, records = _tower(periods=48 * 20)
     first, second = records.iloc[:48 * 12].copy(), records.iloc[48 * 7:].copy()
-    second["ta"] = (second["ta"] + 0.1).round(2)
+    second["t_air"] = (second["t_air"] + 0.1).round(2)
     first.to_csv(tmp_path / "dl1.csv", index=False)
     second.to_csv(tmp_path / "dl2.csv", index=False)
     with pytest.raises(DuplicateTimestampError) as caught:

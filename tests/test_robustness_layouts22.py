@@ -35,7 +35,7 @@ from fluxpart.stamp_places import (
 from fluxpart.timestamps import budget_year_edges
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
 FORMAT = "%Y-%m-%d %H:%M"
 
 
@@ -81,18 +81,18 @@ def test_a_time_column_named_for_another_place_is_refused_naming_both(tmp_path, 
     frame, _ = _read(tmp_path / "a.csv", time_column=column, time_marks=named)
     pd.testing.assert_index_equal(frame.index, pd.DatetimeIndex(starts, name="time"),
                                   check_exact=True)
-    np.testing.assert_array_equal(frame["nee"].to_numpy(), records["fc"].to_numpy())
+    np.testing.assert_array_equal(frame["nee"].to_numpy(), records["co2_flux"].to_numpy())
 
 
 def test_date_and_time_columns_are_judged_each():
     """Of a date and a time column, the time column's name counts (common practice:
     "Date", "EndTime")."""
     assert column_place("EndTime") == "end" and column_place("Date") is None
-    assert column_place("TIMESTAMP_START") == "start"
+    assert column_place("stamp_start") == "start"
     assert column_place("endtime") == "end"
     # words that only contain the letters, or name two places, say nothing
     assert column_place("weekend") is None and column_place("start_end") is None
-    assert column_place("TIMESTAMP") is None
+    assert column_place("logger_stamp") is None
 
 
 def test_utc_offsets_in_names_read_as_iso_8601_writes_them():

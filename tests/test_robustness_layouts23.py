@@ -19,8 +19,8 @@ from fluxpart.unit_labels import relabelled_files, relabelled_months_message
 from fluxpart.variables import same_unit_key
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd", "rh": "rh"}
-UNITS = {"fc": "umol m-2 s-1", "us": "m s-1", "sw": "W m-2", "ta": "degC", "vpd": "hPa",
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd", "rh": "rh"}
+UNITS = {"co2_flux": "umol m-2 s-1", "us": "m s-1", "sw": "W m-2", "t_air": "degC", "vpd": "hPa",
          "rh": "%"}
 
 

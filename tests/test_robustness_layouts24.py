@@ -22,7 +22,7 @@ from fluxpart.site import Site
 from fluxpart.stamp_places import stated_offset, stated_place, zone_offset
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
 
 
 def _records(days=20):
@@ -32,10 +32,10 @@ def _records(days=20):
     hour = (ends.hour + ends.minute / 60).to_numpy()
     sun = np.clip(np.sin((hour - 6) / 12 * np.pi), 0, None)
     values = pd.DataFrame({
-        "fc": np.round(3 - 12 * sun + rng.normal(0, 1, len(ends)), 3),
+        "co2_flux": np.round(3 - 12 * sun + rng.normal(0, 1, len(ends)), 3),
         "us": np.round(0.3 + 0.1 * rng.random(len(ends)), 3),
         "sw": np.round(800 * sun, 1),
-        "ta": np.round(15 + 8 * sun, 2),
+        "t_air": np.round(15 + 8 * sun, 2),
         "vpd": np.round(5 + 10 * sun, 2),
     })
     return ends, values
@@ -107,7 +107,7 @@ def test_zone_offset_is_the_standard_offset_of_a_zone_name():
         expected = moment.astimezone(ZoneInfo(name)).utcoffset() / timedelta(hours=1)
         assert zone_offset(name) == expected
     assert zone_offset("Zeit (MEZ)") == 1.0
-    assert zone_offset("TIMESTAMP") is None and zone_offset("time_met") is None
+    assert zone_offset("logger_stamp") is None and zone_offset("time_met") is None
     assert zone_offset("Time zone: est") is None          # lower case: a word, not a label
 
 
@@ -202,7 +202,7 @@ def test_microsoft_nan_and_infinity_cells_read_as_missing(tmp_path):
     "add it to [input] missing". Now read as missing (NaN) and counted (infinity)."""
     ends, values = _records()
     values = values.astype(str)
-    values.loc[[10, 20], "ta"] = "-1.#IND"
+    values.loc[[10, 20], "t_air"] = "-1.#IND"
     values.loc[[30], "sw"] = "1.#QNAN"
     values.loc[[40], "vpd"] = "1.#INF00"
     path = _write(tmp_path / "m.csv", ends.strftime("%Y-%m-%d %H:%M"), values)
@@ -235,7 +235,7 @@ def test_overlap_differing_only_by_rounding_is_named(tmp_path):
     ends, values = _records()
     stamps = ends.strftime("%Y-%m-%d %H:%M")
     rounded = values.copy()
-    rounded["fc"] = rounded["fc"].round(2)
+    rounded["co2_flux"] = rounded["co2_flux"].round(2)
     rounded["us"] = rounded["us"].round(2)
     _write(tmp_path / "a.csv", stamps[:500], values.iloc[:500])
     _write(tmp_path / "b.csv", stamps[400:], rounded.iloc[400:])
@@ -246,7 +246,7 @@ def test_overlap_differing_only_by_rounding_is_named(tmp_path):
     assert "rounded to fewer decimals" in message
     assert message.index("b.csv' is that of") < message.index("a.csv' rounded")
     other = values.copy()
-    other["fc"] = other["fc"] + 0.5
+    other["co2_flux"] = other["co2_flux"] + 0.5
     _write(tmp_path / "b.csv", stamps[400:], other.iloc[400:])
     with pytest.raises(FluxpartError) as caught:
         _read(paths)
@@ -272,7 +272,7 @@ def test_overlap_differing_only_by_rounding_is_named(tmp_path):
     # no statement of the place: a date of the record, a clause about other things
     ("Period start: 2021-01-01", False, None),
     ("Timestamp format: yyyy-mm-dd; data end 2021-12-31", False, None),
-    ("TS", True, None),
+    ("time", True, None),
     ("start of interval .. end of interval", False, None),
 ])
 def test_stated_place_words(text, cell, expected):

@@ -22,11 +22,11 @@ from fluxpart.io import read_table
 from fluxpart.site import Site
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
 
 
 def _lines(stamps):
-    rows = ["stamp,fc,us,sw,ta,vpd"]
+    rows = ["stamp,co2_flux,us,sw,t_air,vpd"]
     rows += [f"{stamp},-1.5,0.31,120.0,14.2,6.1" for stamp in stamps]
     return "\n".join(rows) + "\n"
 
@@ -124,7 +124,7 @@ def test_numbers_with_a_leading_apostrophe_are_named(tmp_path):
     LibreOffice (m)). Refused naming the apostrophe; before, the hint was to add the cell
     to [input] missing, which would have blanked that one value and named the next."""
     path = tmp_path / "tower.csv"
-    rows = ["stamp,fc,us,sw,ta,vpd"]
+    rows = ["stamp,co2_flux,us,sw,t_air,vpd"]
     rows += [f"2021-06-01 {h:02d}:30,'-1.5,0.31,120.0,14.2,6.1" for h in range(8)]
     path.write_text("\n".join(rows) + "\n")
     with pytest.raises(InputFileError) as caught:
@@ -178,7 +178,7 @@ def test_whitespace_file_with_empty_values_names_the_collapse(tmp_path):
     (m))). Refused naming that and a missing code as the fix; before, the fix named was
     "write missing values as empty cells between delimiters", which such a file cannot
     hold."""
-    rows = ["stamp fc us sw ta vpd"]
+    rows = ["stamp co2_flux us sw t_air vpd"]
     rows += [f"2021-06-01T{h:02d}:30 -1.5 0.31 120.0 14.2 6.1" for h in range(8)]
     rows[3] = "2021-06-01T02:30 -1.5  120.0 14.2 6.1"
     path = tmp_path / "tower.txt"
@@ -196,7 +196,7 @@ def test_comment_line_among_records_is_named(tmp_path):
     """A note written among the records ("# sensor cleaned"; '#' opens a comment in many
     text formats, common practice): refused naming a comment line, not a record cut short
     mid-number as before."""
-    rows = ["stamp,fc,us,sw,ta,vpd"]
+    rows = ["stamp,co2_flux,us,sw,t_air,vpd"]
     rows += [f"2021-06-01 {h:02d}:30,-1.5,0.31,120.0,14.2,6.1" for h in range(8)]
     rows.insert(4, "# sensor cleaned")
     path = tmp_path / "tower.csv"

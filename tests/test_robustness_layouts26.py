@@ -28,8 +28,8 @@ from fluxpart.io import read_table
 from fluxpart.site import Site
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
-NAMES = ["fc", "us", "sw", "ta", "vpd"]
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
+NAMES = ["co2_flux", "us", "sw", "t_air", "vpd"]
 
 
 def _records(count=96 * 4):

@@ -33,8 +33,8 @@ from fluxpart.stamp_places import (
 )
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
-NAMES = ["fc", "us", "sw", "ta", "vpd"]
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
+NAMES = ["co2_flux", "us", "sw", "t_air", "vpd"]
 
 
 def _records(count=96 * 4):
@@ -284,7 +284,7 @@ def test_a_clock_after_the_stamps_is_not_offered_as_text(tmp_path):
 @pytest.mark.parametrize(("column", "place"), [
     ("horodatage_début", "start"), ("fecha_hora_inicio", "start"),
     ("ora_inizio", "start"), ("horodatage_fin", "end"), ("fecha_hora_final", "end"),
-    ("TIMESTAMP_END", "end"), ("Zeit", None),
+    ("stamp_end", "end"), ("Zeit", None),
 ])
 def test_time_column_named_for_its_place_in_other_languages(column, place):
     """début/inicio/inizio mean start, fin/final mean end (any dictionary); a column's

@@ -29,8 +29,8 @@ from fluxpart.io import read_table
 from fluxpart.site import Site
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
-NAMES = ["fc", "us", "sw", "ta", "vpd"]
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
+NAMES = ["co2_flux", "us", "sw", "t_air", "vpd"]
 
 
 def _records(count=96 * 4):
@@ -77,7 +77,7 @@ def _notations(ends, values):
     """Each notation as a logger, portal or script writes it, and the word naming it."""
     objects = [{"stamp": s} | dict(zip(NAMES, row.tolist(), strict=True))
                for s, row in zip(_stamps(ends), values, strict=True)]
-    tags = "\n".join(f'<r stamp="{o["stamp"]}" fc="{o["fc"]}"/>' for o in objects)
+    tags = "\n".join(f'<r stamp="{o["stamp"]}" co2_flux="{o["co2_flux"]}"/>' for o in objects)
     cells = "\n".join("<tr>" + "".join(f"<td>{v}</td>" for v in o.values()) + "</tr>"
                       for o in objects)
     return {
@@ -124,11 +124,11 @@ def test_json_lines_below_a_title_are_named(tmp_path):
 
 
 @pytest.mark.parametrize("header", [
-    "stamp,fc,us,sw,ta,vpd",
-    "<stamp>,<fc>,<us>,<sw>,<ta>,<vpd>",        # names in angle brackets between commas
-    "[stamp],[fc],[us],[sw],[ta],[vpd]",        # names in square brackets
-    "{stamp},{fc}",                             # braces, not a JSON object
-    "TIMESTAMP;co2_flux [umol m-2 s-1];Rg [W/m2]",
+    "stamp,co2_flux,us,sw,t_air,vpd",
+    "<stamp>,<co2_flux>,<us>,<sw>,<t_air>,<vpd>",        # names in angle brackets between commas
+    "[stamp],[co2_flux],[us],[sw],[t_air],[vpd]",        # names in square brackets
+    "{stamp},{co2_flux}",                             # braces, not a JSON object
+    "logger_stamp;co2_flux [umol m-2 s-1];Rg [W/m2]",
 ])
 def test_table_headers_are_not_taken_for_markup(header):
     """A delimited header whose names hold brackets is no JSON (RFC 8259 needs quoted
@@ -140,7 +140,7 @@ def test_a_table_with_brackets_in_names_reads_as_before(tmp_path):
     """Known truth: names in angle brackets read as written."""
     ends, values = _records(96)
     path = tmp_path / "mast.csv"
-    lines = ["<stamp>,<fc>,<us>,<sw>,<ta>,<vpd>"]
+    lines = ["<stamp>,<co2_flux>,<us>,<sw>,<t_air>,<vpd>"]
     lines += [",".join([s] + row) for s, row in zip(_stamps(ends), _cells(values), strict=True)]
     path.write_text("\n".join(lines) + "\n")
     frame, _ = _read(path, time_column="<stamp>",

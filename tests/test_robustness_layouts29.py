@@ -23,8 +23,8 @@ from fluxpart.io import read_table
 from fluxpart.site import Site
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
-NAMES = ["fc", "us", "sw", "ta", "vpd"]
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
+NAMES = ["co2_flux", "us", "sw", "t_air", "vpd"]
 
 
 def _records(count=96 * 4):
@@ -158,19 +158,19 @@ def test_a_value_and_its_flag_in_one_cell_are_named(tmp_path):
 
 # ------------------------------------------------ a name written twice in the header
 def test_a_repeated_header_name_is_not_suggested_under_the_parser_s_name(tmp_path):
-    """pandas reads a repeated name 'ta' as 'ta' and 'ta.1' (checked below); the message
-    suggested 'ta.1', a name the file does not hold. Now the header is listed as written
+    """pandas reads a repeated name 't_air' as 't_air' and 't_air.1' (checked below); the message
+    suggested 't_air.1', a name the file does not hold. Now the header is listed as written
     and the repeated name is named."""
     ends, values = _records()
     cells = [row + [row[3]] for row in _cells(values)]
     path = tmp_path / "mast.csv"
-    _write(path, ends, cells, names=NAMES[:3] + ["ta", "vpd", "ta"])
+    _write(path, ends, cells, names=NAMES[:3] + ["t_air", "vpd", "t_air"])
     parsed = pd.read_csv(io.StringIO(path.read_text()), nrows=1)
-    assert "ta.1" in parsed.columns                      # pandas' renaming (outside fact)
+    assert "t_air.1" in parsed.columns                      # pandas' renaming (outside fact)
     with pytest.raises(MissingColumnError) as caught:
-        _read(path, columns=MAPPING | {"tsoil": "ts"})
+        _read(path, columns=MAPPING | {"tsoil": "t_soil"})
     message = str(caught.value)
-    assert "ta.1" not in message
-    assert "'ta' is written more than once in the header" in message
+    assert "t_air.1" not in message
+    assert "'t_air' is written more than once in the header" in message
     # mapped, the repeated name is refused as before
     assert "appears more than once" in _message(path, columns=MAPPING)

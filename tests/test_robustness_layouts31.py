@@ -23,8 +23,9 @@ from fluxpart.site import Site
 from fluxpart.solar import potential_radiation
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd", "tsoil": "ts"}
-NAMES = ["fc", "us", "sw", "ta", "vpd", "ts"]
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd",
+           "tsoil": "t_soil"}
+NAMES = ["co2_flux", "us", "sw", "t_air", "vpd", "t_soil"]
 
 
 def _records(count=48 * 30):
@@ -101,7 +102,7 @@ def test_a_freezing_soil_under_a_code_of_zero_is_refused(tmp_path):
     ends, values = _records()
     values[:, 5] = np.round(np.random.default_rng(5).normal(0.0, 0.3, len(ends)), 1)
     path = _write(tmp_path / "s.csv", ends, values)
-    with pytest.raises(ConfigError, match=r"column 'ts' \(tsoil\).*as a measured value is"):
+    with pytest.raises(ConfigError, match=r"column 't_soil' \(tsoil\).*as a measured value is"):
         _read(path, missing=[-9999, 0], missing_by_variable={"rg": [0]})
 
 
@@ -129,7 +130,8 @@ def test_ordinary_code_rules_on_their_own():
     vpd = np.concatenate([np.zeros(200), rng.uniform(0.1, 20, 760).round(1)])
     assert ordinary_code_message("vpd", "vpd", 0.0, vpd) is None       # its minimum
     tair = rng.normal(0, 0.3, 960).round(1)
-    assert "an ordinary value of column 'ta'" in ordinary_code_message("tair", "ta", 0.0, tair)
+    assert "an ordinary value of column 't_air'" in ordinary_code_message("tair", "t_air", 0.0,
+                                                                           tair)
 
 
 def test_missing_by_variable_in_the_site_config(tmp_path):
@@ -140,8 +142,8 @@ def test_missing_by_variable_in_the_site_config(tmp_path):
     config = tmp_path / "site.toml"
     text = ('[site]\nname = "invented"\nlatitude = 49.3\nlongitude = 10.2\nutc_offset = 1.0\n'
             '[input]\npath = "t.csv"\ntime_column = "stamp"\ntime_format = "%Y-%m-%d %H:%M"\n'
-            'time_marks = "end"\n[input.columns]\nnee = "fc"\nustar = "us"\nrg = "sw"\n'
-            'tair = "ta"\nvpd = "vpd"\n[input.units]\nvpd = "hPa"\n'
+            'time_marks = "end"\n[input.columns]\nnee = "co2_flux"\nustar = "us"\nrg = "sw"\n'
+            'tair = "t_air"\nvpd = "vpd"\n[input.units]\nvpd = "hPa"\n'
             '[input.missing_by_variable]\n')
     config.write_text(text + "nee = [0]\n", encoding="utf-8")
     frame, _ = read_config(config)
@@ -227,7 +229,7 @@ def test_a_zip_holding_a_compressed_file_names_it(tmp_path):
 
     path = tmp_path / "t.zip"
     with zipfile.ZipFile(path, "w") as archive:
-        archive.writestr("tower.csv.gz", gzip.compress(b"stamp,fc\n", mtime=0))
+        archive.writestr("tower.csv.gz", gzip.compress(b"stamp,co2_flux\n", mtime=0))
         archive.writestr("notes.txt", "station 4")   # one file alone is read (layouts36)
     assert zipfile.ZipFile(path).namelist() == ["tower.csv.gz", "notes.txt"]
     with pytest.raises(Exception) as caught:
@@ -244,17 +246,18 @@ def test_a_zip_holding_a_compressed_file_names_it(tmp_path):
 
 
 def test_a_site_code_before_each_name_is_suggested(tmp_path):
-    """Before: the file's columns listed, none suggested ('fc' and 'QMG_fc' are too far
-    apart for difflib's ratio, 2*2/8 = 0.5 below 0.6)."""
+    """Before: the file's columns listed, none suggested ('co2_flux' and
+    'QMG_logger1_co2_flux', a site code and a logger name before each name, are too far
+    apart for difflib's ratio, 2*8/28 = 0.571 below 0.6)."""
     import difflib
 
-    assert difflib.SequenceMatcher(None, "fc", "QMG_fc").ratio() == 0.5
+    assert difflib.SequenceMatcher(None, "co2_flux", "QMG_logger1_co2_flux").ratio() == 16 / 28
     lines = _plain_lines()
-    lines[0] = "stamp," + ",".join("QMG_" + n for n in NAMES)
+    lines[0] = "stamp," + ",".join("QMG_logger1_" + n for n in NAMES)
     path = tmp_path / "p.csv"
     path.write_text("\n".join(lines) + "\n", encoding="utf-8")
-    with pytest.raises(Exception, match=r"did you mean 'QMG_fc'\? the file's name carries the "
-                                        r"prefix 'QMG_'"):
+    with pytest.raises(Exception, match=r"did you mean 'QMG_logger1_co2_flux'\? the file's "
+                                        r"name carries the prefix 'QMG_logger1_'"):
         _read(path)
 
 

@@ -20,8 +20,8 @@ from fluxpart.io import read_table
 from fluxpart.site import Site
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd", "rh": "rh"}
-NAMES = ["fc", "us", "sw", "ta", "vpd", "rh"]
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd", "rh": "rh"}
+NAMES = ["co2_flux", "us", "sw", "t_air", "vpd", "rh"]
 
 
 def _saturation_kpa(t_c):
@@ -175,7 +175,7 @@ def test_tair_in_tenths_of_a_degree_is_named_and_read_declared(tmp_path):
     with pytest.raises(ImplausibleValueError) as caught:
         _read(path, missing=[-9999])
     message = str(caught.value)
-    assert "column 'ta' (tair" in message and 'tair = "0.1 °C"' in message
+    assert "column 't_air' (tair" in message and 'tair = "0.1 °C"' in message
     frame, _ = _read(path, missing=[-9999], units={"vpd": "kPa", "tair": "0.1 °C"})
     assert np.allclose(frame["tair"].to_numpy(), celsius, atol=1e-9)
 
@@ -189,10 +189,10 @@ def test_whole_numbers_that_read_as_fahrenheit_or_tenths_name_both():
     t = np.arange(48 * days)
     celsius = 14 + 4 * np.sin(t / 48 * 2 * math.pi)
     fahrenheit = np.round(1.8 * celsius + 32)               # 50-65, plausible as °C
-    message = _tair_message({"tair": fahrenheit}, {}, {"tair": "ta"}, 30)
+    message = _tair_message({"tair": fahrenheit}, {}, {"tair": "t_air"}, 30)
     assert 'tair = "°F"' in message and 'tair = "0.1 °C"' in message
     # with decimals the numbers are no integer tenths: °F alone, as before
-    message = _tair_message({"tair": 1.8 * celsius + 32}, {}, {"tair": "ta"}, 30)
+    message = _tair_message({"tair": 1.8 * celsius + 32}, {}, {"tair": "t_air"}, 30)
     assert 'tair = "°F"' in message and "0.1 °C" not in message
 
 
@@ -253,5 +253,5 @@ def test_integer_tenths_that_fahrenheit_cannot_read_name_tenths_alone():
     t = np.arange(48 * 60)
     tenths = np.round(10 * (5 + 13 * np.sin(t / 48 * 2 * math.pi)))
     assert (tenths.min() - 32) / 1.8 < -60
-    message = _tair_message({"tair": tenths}, {}, {"tair": "ta"}, 30)
+    message = _tair_message({"tair": tenths}, {}, {"tair": "t_air"}, 30)
     assert 'tair = "0.1 °C"' in message and '"°F"' not in message

@@ -26,7 +26,7 @@ from fluxpart.site import Site
 from fluxpart.timestamps import _other_separators, _seconds_of_day
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
 FORMAT = "%Y-%m-%d %H:%M"
 
 

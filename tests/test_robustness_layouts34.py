@@ -31,10 +31,11 @@ def _write(path, names, count=48 * 20, seed=34):
     hour = ends.hour + ends.minute / 60
     rng = np.random.default_rng(seed)
     day = np.sin((hour - 6) / 12 * np.pi)
-    kinds = {"fc": lambda: (3 - 12 * np.clip(day, 0, None) + rng.normal(0, 1, count)).round(3),
+    kinds = {"co2_flux":
+             lambda: (3 - 12 * np.clip(day, 0, None) + rng.normal(0, 1, count)).round(3),
              "us": lambda: (0.3 + 0.1 * rng.random(count)).round(3),
              "sw": lambda: (np.clip(800 * day, 0, None) + 1.0).round(1),
-             "ta": lambda: (15 + 6 * day + rng.normal(0, 0.2, count)).round(2),
+             "t_air": lambda: (15 + 6 * day + rng.normal(0, 0.2, count)).round(2),
              "vpd": lambda: (0.8 + 0.6 * np.clip(day, 0, None)).round(3)}
     columns = {}
     for name in names:
@@ -55,47 +56,50 @@ def _read(path, mapping):
 
 # ------------------------------------------------ a profile's heights, two analysers
 def test_a_profile_of_heights_names_every_height_not_the_shortest(tmp_path):
-    """Before: `tair = "ta"` over a profile file (ta_2m, ta_10m, ta_30m) was told "did you
-    mean 'ta_2m'?", the shortest name (difflib's nearest), one height of three chosen by
+    """Before: `tair = "t_air"` over a profile file (t_air_2m, t_air_10m,
+    t_air_30m) was told "did you
+    mean 't_air_2m'?", the shortest name (difflib's nearest), one height of three chosen by
     the hint; now every height is named and the choice left to the user."""
-    names = ["fc", "us", "sw", "ta_2m", "ta_10m", "ta_30m", "vpd"]
+    names = ["co2_flux", "us", "sw", "t_air_2m", "t_air_10m", "t_air_30m", "vpd"]
     path = _write(tmp_path / "profile.csv", names)
-    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    mapping = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
     with pytest.raises(MissingColumnError) as caught:
         _read(path, mapping)
     message = str(caught.value)
-    assert "did you mean one of 'ta_2m', 'ta_10m', 'ta_30m'?" in message
+    assert "did you mean one of 't_air_2m', 't_air_10m', 't_air_30m'?" in message
     assert "3 columns carry the name" in message and "map the one you mean" in message
     # the height named is read as written (known truth: the column's own values)
-    table, _ = _read(path, mapping | {"tair": "ta_10m"})
-    written = pd.read_csv(path)["ta_10m"].to_numpy()
+    table, _ = _read(path, mapping | {"tair": "t_air_10m"})
+    written = pd.read_csv(path)["t_air_10m"].to_numpy()
     assert np.array_equal(table["tair"].to_numpy(), written)
 
 
 def test_two_analysers_name_both_fluxes_not_the_shorter(tmp_path):
-    """Before: `nee = "fc"` over fc_open and fc_closed (two analysers) was told "did you
-    mean 'fc_open'?", the shorter name; an open-path flux needs a correction the closed
+    """Before: `nee = "co2_flux"` over co2_flux_open and co2_flux_closed (two
+    analysers) was told "did you
+    mean 'co2_flux_open'?", the shorter name; an open-path flux needs a correction the closed
     path does not (Burba et al. 2008 (m)), so both are named."""
-    names = ["fc_closed", "fc_open", "us", "sw", "ta", "vpd"]
+    names = ["co2_flux_closed", "co2_flux_open", "us", "sw", "t_air", "vpd"]
     path = _write(tmp_path / "two.csv", names)
-    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    mapping = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
     with pytest.raises(MissingColumnError) as caught:
         _read(path, mapping)
     message = str(caught.value)
-    assert "did you mean one of 'fc_closed', 'fc_open'?" in message
-    assert "did you mean 'fc_open'" not in message
+    assert "did you mean one of 'co2_flux_closed', 'co2_flux_open'?" in message
+    assert "did you mean 'co2_flux_open'" not in message
 
 
 def test_the_many_suffixes_rule_on_its_own():
     """One column with a prefix or suffix is still suggested alone (layouts31's site code);
     an exact name in another case is still preferred over the suffixed ones; a name far
     from every column still gets no suggestion."""
-    assert _near("fc", ["QMG_fc", "QMG_ta"]) == (
-        " (did you mean 'QMG_fc'? the file's name carries the prefix 'QMG_')")
+    assert _near("co2_flux", ["QMG_logger1_co2_flux", "QMG_logger1_t_air"]) == (
+        " (did you mean 'QMG_logger1_co2_flux'? the file's name carries the prefix "
+        "'QMG_logger1_')")
     assert _near("co2_flux", ["CO2_FLUX", "co2_flux_open", "co2_flux_closed"]) == (
         " (did you mean 'CO2_FLUX'?)")
-    several = _near("ta", ["tau", "ta_2m", "ta_10m"])
-    assert several.startswith(" (did you mean one of 'ta_2m', 'ta_10m', 'tau'?")
+    several = _near("t_air", ["st_air", "t_air_2m", "t_air_10m"])
+    assert several.startswith(" (did you mean one of 't_air_2m', 't_air_10m', 'st_air'?")
     assert _near("ustar", ["zz", "qq"]) == ""
 
 
@@ -105,14 +109,14 @@ def test_one_flux_in_two_units_names_both_columns(tmp_path):
     s-1 is 22.7 umol m-2 s-1 (molar mass of CO2 44.01 g mol-1, IUPAC (m)), so both are
     named."""
     path = tmp_path / "units.csv"
-    _write(path, ["fc", "us", "sw", "ta", "vpd"])
+    _write(path, ["co2_flux", "us", "sw", "t_air", "vpd"])
     text = path.read_text(encoding="utf-8").splitlines()
-    flux = pd.read_csv(path)["fc"].to_numpy()
+    flux = pd.read_csv(path)["co2_flux"].to_numpy()
     header = "stamp,NEE (umol m-2 s-1),NEE (mg m-2 s-1)," + text[0].split(",", 2)[2]
     rows = [f"{line.split(',', 2)[0]},{line.split(',', 2)[1]},{f * 44.01e-3:.5f},"
             f"{line.split(',', 2)[2]}" for line, f in zip(text[1:], flux, strict=True)]
     path.write_text("\n".join([header] + rows) + "\n", encoding="utf-8")
-    mapping = {"nee": "NEE", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    mapping = {"nee": "NEE", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
     with pytest.raises(MissingColumnError) as caught:
         _read(path, mapping)
     message = str(caught.value)
@@ -127,12 +131,12 @@ def test_a_block_of_comment_lines_ending_the_file_is_dropped_as_a_footer(tmp_pat
     checksum) were refused as "a comment line among the records", where one such line is
     dropped with a warning as a footer; now the block is dropped, named, and every record
     is read as written (known truth: the records before it)."""
-    names = ["fc", "us", "sw", "ta", "vpd"]
+    names = ["co2_flux", "us", "sw", "t_air", "vpd"]
     plain = _write(tmp_path / "plain.csv", names)
     footed = tmp_path / "footed.csv"
     footed.write_text(plain.read_text(encoding="utf-8")
                       + "# end of file\n# records: 960\n# checksum 3f2a\n", encoding="utf-8")
-    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    mapping = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
     expected, _ = _read(plain, mapping)
     table, report = _read(footed, mapping)
     pd.testing.assert_frame_equal(table, expected)
@@ -143,12 +147,12 @@ def test_a_block_of_comment_lines_ending_the_file_is_dropped_as_a_footer(tmp_pat
 def test_comment_lines_among_the_records_stay_refused(tmp_path):
     """A comment between records (a logger restart's note) is still refused, naming it:
     only a block that ends the file is a footer."""
-    names = ["fc", "us", "sw", "ta", "vpd"]
+    names = ["co2_flux", "us", "sw", "t_air", "vpd"]
     path = _write(tmp_path / "notes.csv", names)
     lines = path.read_text(encoding="utf-8").splitlines()
     lines[400:400] = ["# logger restarted", "# program qm_v2"]
     path.write_text("\n".join(lines) + "\n# end of file\n", encoding="utf-8")
-    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    mapping = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
     with pytest.raises(InputFileError, match=r"line 401 \('# logger restarted'\).*a comment "
                                              r"line among the records"):
         _read(path, mapping)
@@ -205,13 +209,13 @@ def test_a_delimiter_closing_every_line_from_mid_file_on_is_read_as_no_column(tm
     empty field as no column, and so now is the part: the records are read as written
     (known truth), with a warning naming the line. A column really added (values in the
     extra field) stays refused."""
-    names = ["fc", "us", "sw", "ta", "vpd"]
+    names = ["co2_flux", "us", "sw", "t_air", "vpd"]
     plain = _write(tmp_path / "plain.csv", names)
     lines = plain.read_text(encoding="utf-8").splitlines()
     closed = tmp_path / "closed.csv"
     closed.write_text("\n".join(lines[:500] + [line + "," for line in lines[500:]]) + "\n",
                       encoding="utf-8")
-    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    mapping = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
     expected, _ = _read(plain, mapping)
     table, report = _read(closed, mapping)
     pd.testing.assert_frame_equal(table, expected)
@@ -230,11 +234,11 @@ def test_a_file_written_newest_first_is_named_so(tmp_path):
     was named by its first step back alone, as one record out of place; now the count of
     backward steps and "newest first" are named. Stamps of an interval's end increase
     with time (common practice: any time series)."""
-    names = ["fc", "us", "sw", "ta", "vpd"]
+    names = ["co2_flux", "us", "sw", "t_air", "vpd"]
     path = _write(tmp_path / "plain.csv", names)
     lines = path.read_text(encoding="utf-8").splitlines()
     path.write_text("\n".join(lines[:1] + lines[:0:-1]) + "\n", encoding="utf-8")
-    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    mapping = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
     with pytest.raises(NonMonotonicTimestampError,
                        match=r"959 of its 959 steps go backwards: the file is written "
                              r"newest first; sort a copy of the file oldest first"):
@@ -253,13 +257,13 @@ def test_ustar_in_centimetres_per_second_is_named_and_read_declared(tmp_path):
     """Before: u* written in cm s-1 (median 24 for 0.24 m s-1) was refused as out of range
     with "check the column mapping and [input.units]", which held no unit to declare; now
     the refusal names `ustar = "cm s-1"` and the unit is read (1 cm = 0.01 m, SI)."""
-    names = ["fc", "us", "sw", "ta", "vpd"]
+    names = ["co2_flux", "us", "sw", "t_air", "vpd"]
     plain = _write(tmp_path / "plain.csv", names)
     frame = pd.read_csv(plain)
     frame["us"] = (frame["us"] * 100).round(1)
     centi = tmp_path / "centi.csv"
     frame.to_csv(centi, index=False)
-    mapping = {"nee": "fc", "ustar": "us", "rg": "sw", "tair": "ta", "vpd": "vpd"}
+    mapping = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
     with pytest.raises(ImplausibleValueError,
                        match=r"the values look like 'cm s-1': set \[input.units\] ustar = "
                              r"\"cm s-1\""):

@@ -143,7 +143,7 @@ def test_year_day_of_year_and_hhmm_with_2400_read_record_for_record(tmp_path, hh
     ("The timestamp is centred on the averaging period", "middle"),
     ("Timestamps are interval midpoints", "middle"),
     ("timestamp_position = start", "start"), ("stamp_position: end", "end"),
-    ("TIMESTAMP convention: interval ending", "end"),
+    ("Timestamp convention: interval ending", "end"),
     # still no statement: a change dated, an event's period, a note in passing
     ("Values before the timestamp change in May were corrected", None),
     ("Logging period ends 2021-12-31", None), ("Calibration period end", None),

@@ -219,7 +219,7 @@ def test_literal_z_in_the_format_is_utc():
         == list(stamps.stamps)
 
 
-@pytest.mark.parametrize(("before", "lines", "wanted"), [(0, ["TS", ""], 2), (1, [""], 2),
+@pytest.mark.parametrize(("before", "lines", "wanted"), [(0, ["time", ""], 2), (1, [""], 2),
                                                          (0, ["degC"], 1)])
 def test_units_and_processing_lines_hint_counts_them_all(before, lines, wanted):
     """A logger header with a units and a processing line: the hint names the number of
@@ -228,7 +228,7 @@ def test_units_and_processing_lines_hint_counts_them_all(before, lines, wanted):
     truth = [f"2021-06-01 {h:02d}:{m:02d}:00" for h in range(3) for m in (0, 30)]
     with pytest.raises(TimestampError, match=rf"rows_after_header = {wanted}$"):
         parse_stamps(pd.Series(lines + truth), "%Y-%m-%d %H:%M:%S",
-                     time_columns=("TIMESTAMP",), source="t.dat",
+                     time_columns=("logger_stamp",), source="t.dat",
                      lines=np.arange(2, len(lines) + len(truth) + 2),
                      rows_after_header=before)
 
@@ -245,9 +245,9 @@ def test_twelve_hour_clock_and_two_digit_year_are_named(stamps, time_format, sai
     the error names the strptime codes that read them (Python datetime.strptime: %I, %p,
     %y); it named only the format."""
     with pytest.raises(TimestampError, match=re.escape(said)):
-        _parse(stamps, time_format, columns=("TIMESTAMP",))
+        _parse(stamps, time_format, columns=("logger_stamp",))
     fixed = said.split("time_format = ")[1].strip('"')
-    assert list(_parse(stamps, fixed, columns=("TIMESTAMP",))) == [
+    assert list(_parse(stamps, fixed, columns=("logger_stamp",))) == [
         pd.Timestamp(2021, 1, 1, 0, 30), pd.Timestamp(2021, 1, 1, 1, 0)]
 
 

@@ -162,7 +162,7 @@ def test_fahrenheit_soil_temperature_of_a_cool_site_refused(seed):
     refusals, _ = mixup_messages(fahrenheit, {}, columns, minutes)
     assert list(refusals) == ["tsoil"] and 'tsoil = "°F"' in refusals["tsoil"]
     winter = {"tair": np.full(30 * 48, -25.0), "tsoil": np.full(30 * 48, -0.5)}
-    refusals, _ = mixup_messages(winter, {}, {"tair": "t", "tsoil": "ts"}, 30)
+    refusals, _ = mixup_messages(winter, {}, {"tair": "t", "tsoil": "t_soil"}, 30)
     assert "tsoil" not in refusals
 
 
@@ -255,11 +255,12 @@ def test_unit_typed_with_look_alike_characters_reads_as_the_unit(tmp_path):
     sun = np.clip(np.sin((starts.hour + starts.minute / 60 - 6) / 12 * np.pi), 0, None)
     rng = np.random.default_rng(2)
     pd.DataFrame({"stamp": starts.strftime("%Y-%m-%d %H:%M"),
-                  "fc": np.round(3 - 15 * sun + rng.normal(0, 1.5, 96), 3),
-                  "sw": np.round(800 * sun, 1), "ta": np.round(12 + 8 * sun, 2),
+                  "co2_flux": np.round(3 - 15 * sun + rng.normal(0, 1.5, 96), 3),
+                  "sw": np.round(800 * sun, 1), "t_air": np.round(12 + 8 * sun, 2),
                   "vpd": np.round(0.2 + 1.4 * sun, 3), "us": np.round(rng.uniform(0.1, 0.6, 96), 3),
                   }).to_csv(tmp_path / "t.csv", index=False)
-    options = {"columns": {"nee": "fc", "rg": "sw", "tair": "ta", "vpd": "vpd", "ustar": "us"},
+    options = {"columns": {"nee": "co2_flux", "rg": "sw", "tair": "t_air", "vpd": "vpd",
+                           "ustar": "us"},
                "time_column": "stamp", "time_format": "%Y-%m-%d %H:%M"}
     plain, _ = read_table(tmp_path / "t.csv", units={"vpd": "kPa"}, **options)
     typed, report = read_table(tmp_path / "t.csv", units={
@@ -455,7 +456,7 @@ def test_global_radiation_mapped_as_ppfd_is_refused(demo_frame):
     potential = potential_radiation(demo_frame.index, site.latitude, site.longitude,
                                     site.utc_offset, interval_minutes=30)
     base = {n: demo_frame[n].to_numpy(float) for n in ("nee", "tair", "vpd")}
-    columns = {"nee": "nee", "tair": "tair", "vpd": "vpd", "ppfd": "sw_in"}
+    columns = {"nee": "nee", "tair": "tair", "vpd": "vpd", "ppfd": "sw_down"}
     wrong = {**base, "ppfd": demo_frame["rg"].to_numpy(float)}
     refusals, _ = mixup_messages(wrong, {}, columns, 30, potential)
     assert "map the column as rg" in refusals.get("ppfd", ""), refusals

@@ -624,7 +624,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing: str = "
     if site.key == "D":  # CSV, header + units line, end stamps
         body = pd.DataFrame({
             "stamp_end": (idx + step).strftime("%Y-%m-%d %H:%M"),
-            "co2_flux": fmt(data.nee, 3, "-9999"), "sw_in": fmt(data.rg, 1, "-9999"),
+            "co2_flux": fmt(data.nee, 3, "-9999"), "sw_down": fmt(data.rg, 1, "-9999"),
             "t_air": fmt(data.tair, 2, "-9999"), "vpd": fmt(data.vpd, 2, "-9999"),
             "u_star": fmt(data.ustar, 3, "-9999"), "t_soil_5cm": fmt(data.tsoil, 2, "-9999")})
         units = "yyyy-mm-dd HH:MM,umol/m2/s,W/m2,degC,hPa,m/s,degC"
@@ -638,7 +638,7 @@ time_format = "%Y-%m-%d %H:%M"
 time_marks = "end"
 missing = [-9999]
 """, """nee = "co2_flux"
-rg = "sw_in"
+rg = "sw_down"
 tair = "t_air"
 vpd = "vpd"
 ustar = "u_star"
@@ -723,18 +723,18 @@ tsoil = "tsoil"
             f'"{e}"' for e in declared) + "]\n")
     elif site.key == "H":  # PPFD, ISO end stamps, NaN
         body = pd.DataFrame({
-            "TIMESTAMP_END": (idx + step).strftime("%Y-%m-%dT%H:%M:%S"),
-            "co2_flux": fmt(data.nee, 3, "NaN"), "PPFD_IN": fmt(data.ppfd, 1, "NaN"),
-            "TA": fmt(data.tair, 2, "NaN"), "VPD": fmt(data.vpd, 2, "NaN"),
+            "stamp_end": (idx + step).strftime("%Y-%m-%dT%H:%M:%S"),
+            "co2_flux": fmt(data.nee, 3, "NaN"), "par_in": fmt(data.ppfd, 1, "NaN"),
+            "T_AIR": fmt(data.tair, 2, "NaN"), "VPD": fmt(data.vpd, 2, "NaN"),
             "u_fric": fmt(data.ustar, 3, "NaN"), "t_soil5": fmt(data.tsoil, 2, "NaN")})
         body.to_csv(folder / "kvitskar.csv", index=False)
         text = toml_site(site, """path = "kvitskar.csv"
-time_column = "TIMESTAMP_END"
+time_column = "stamp_end"
 time_format = "%Y-%m-%dT%H:%M:%S"
 time_marks = "end"
 """, """nee = "co2_flux"
-ppfd = "PPFD_IN"
-tair = "TA"
+ppfd = "par_in"
+tair = "T_AIR"
 vpd = "VPD"
 ustar = "u_fric"
 tsoil = "t_soil5"
@@ -743,20 +743,20 @@ tsoil = "t_soil5"
         utc = idx - pd.Timedelta(hours=site.utc_offset)
         body = pd.DataFrame({
             "time_utc": utc.strftime("%Y-%m-%dT%H:%M+00:00"),
-            "fc": fmt(data.nee, 3, ""), "rg": fmt(data.rg, 1, ""),
-            "ta": fmt(data.tair, 2, ""), "vpd": fmt(data.vpd, 2, ""),
-            "ust": fmt(data.ustar, 3, ""), "ts": fmt(data.tsoil, 2, "")})
+            "co2_flux": fmt(data.nee, 3, ""), "rg": fmt(data.rg, 1, ""),
+            "t_air": fmt(data.tair, 2, ""), "vpd": fmt(data.vpd, 2, ""),
+            "ust": fmt(data.ustar, 3, ""), "t_soil": fmt(data.tsoil, 2, "")})
         body.to_csv(folder / "kereru.csv", index=False)
         text = toml_site(site, """path = "kereru.csv"
 time_column = "time_utc"
 time_format = "%Y-%m-%dT%H:%M%z"
 time_marks = "start"
-""", """nee = "fc"
+""", """nee = "co2_flux"
 rg = "rg"
-tair = "ta"
+tair = "t_air"
 vpd = "vpd"
 ustar = "ust"
-tsoil = "ts"
+tsoil = "t_soil"
 """, processing=processing)
     elif site.key == "G":  # monthly files, day-first end stamps, a flag (2 = bad)
         stamps = idx + step

@@ -565,7 +565,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
             "RH_air": fmt(data.rh, 1, "NAN"), "u_fric": fmt(data.ustar, 3, "NAN"),
             "T_sed": fmt(data.tsoil, 2, "NAN"), "WaterLvl": fmt(data.level, 3, "NAN")})
         body = frame.to_csv(index=False).split("\n", 1)
-        units = "TS,umol/m2/s,umol/m2/s,degC,%,m/s,degC,m"
+        units = "time,umol/m2/s,umol/m2/s,degC,%,m/s,degC,m"
         (folder / "saltgrass_flux.csv").write_text(body[0] + "\n" + units + "\n" + body[1])
         text = toml(site, 'path = "saltgrass_flux.csv"\nrows_after_header = 1\n'
                     'time_column = "stamp_end"\ntime_format = "%Y-%m-%d %H:%M:%S"\n'

@@ -693,14 +693,14 @@ def write_layout(frame: pd.DataFrame, spec: dict, folder: Path) -> Path:
         middle = start_stamps + pd.Timedelta(minutes=step / 2)
         table = pd.DataFrame({
             "mid_time": middle.strftime("%Y-%m-%d %H:%M"), "co2": values.nee,
-            "par_umol": values.rg * PPFD_PER_RG, "ta": values.tair, "vpd_hpa": values.vpd,
-            "ustar": values.ustar, "ts": values.tsoil, "rh": values.rh,
+            "par_umol": values.rg * PPFD_PER_RG, "t_air": values.tair, "vpd_hpa": values.vpd,
+            "ustar": values.ustar, "t_soil": values.tsoil, "rh": values.rh,
             "qcflag": values.quality, "analyser": values.diagnostic})
         table.round(4).to_csv(folder / "kessrin.txt", sep="\t", index=False, na_rep="NA")
         body = ('[input]\npath = "kessrin.txt"\ndelimiter = "\\t"\ntime_column = "mid_time"\n'
                 'time_format = "%Y-%m-%d %H:%M"\ntime_marks = "middle"\nmissing = ["NA"]\n'
                 'flag_accept = [0, 1]\n\n[input.columns]\nnee = "co2"\nppfd = "par_umol"\n'
-                'tair = "ta"\nvpd = "vpd_hpa"\nustar = "ustar"\ntsoil = "ts"\nrh = "rh"\n'
+                'tair = "t_air"\nvpd = "vpd_hpa"\nustar = "ustar"\ntsoil = "t_soil"\nrh = "rh"\n'
                 'nee_flag = ["qcflag", "analyser"]\n')
     elif layout == "utc_z_absent":
         utc_end = end_stamps - pd.Timedelta(hours=spec["utc_offset"])
@@ -751,7 +751,7 @@ def write_layout(frame: pd.DataFrame, spec: dict, folder: Path) -> Path:
         year[midnight] = before.year.to_numpy()[midnight]
         hhmm = np.where(midnight, 2400, hhmm)
         table = pd.DataFrame({
-            "yr": year, "jday": doy, "hhmm": hhmm, "fc": values.nee, "rsd": values.rg,
+            "yr": year, "jday": doy, "hhmm": hhmm, "co2_flux": values.nee, "rsd": values.rg,
             "tc": values.tair, "dvpd": values.vpd, "usr": values.ustar, "tsl": values.tsoil,
             "qf": values.quality, "dg": values.diagnostic})
         text = table.round(4).fillna(-9999).to_string(index=False)
@@ -764,7 +764,7 @@ def write_layout(frame: pd.DataFrame, spec: dict, folder: Path) -> Path:
                 'rows_after_header = 1\ndelimiter = "whitespace"\n'
                 'time_column = ["yr", "jday", "hhmm"]\ntime_format = "%Y %j %H%M"\n'
                 'time_marks = "end"\nmissing = [-9999]\nflag_accept = [0, 1]\n\n'
-                '[input.columns]\nnee = "fc"\nrg = "rsd"\ntair = "tc"\nvpd = "dvpd"\n'
+                '[input.columns]\nnee = "co2_flux"\nrg = "rsd"\ntair = "tc"\nvpd = "dvpd"\n'
                 'ustar = "usr"\ntsoil = "tsl"\nnee_flag = ["qf", "dg"]\n')
     else:
         raise ValueError(f"unknown layout {layout!r}")

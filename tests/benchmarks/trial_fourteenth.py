@@ -621,7 +621,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
                           nee_mg)
         flag = np.where(bad, 2, flag)
         frame = pd.DataFrame({
-            "TIMESTAMP_END": end.strftime("%m/%d/%Y %H:%M"),
+            "stamp_end": end.strftime("%m/%d/%Y %H:%M"),
             "CO2_FLX": fmt(nee_mg, 5, "-9999"), "QC_CO2": flag,
             "PAR_IN": fmt(data.rg * 2.10, 1, "-9999"), "AIR_T": fmt(data.tair + 273.15, 2,
                                                                     "-9999"),
@@ -633,7 +633,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
             "Marrow Hill tower export (FICTIONAL site)\n" + body[0] + "\n" + units_line + "\n"
             + body[1])
         text = toml(site, 'path = "marrow_hill.csv"\nrows_before_header = 1\n'
-                    'rows_after_header = 1\ntime_column = "TIMESTAMP_END"\n'
+                    'rows_after_header = 1\ntime_column = "stamp_end"\n'
                     'time_format = "%m/%d/%Y %H:%M"\ntime_marks = "end"\nmissing = [-9999]\n'
                     'flag_accept = [0, 1]\n',
                     'nee = "CO2_FLX"\nnee_flag = "QC_CO2"\nppfd = "PAR_IN"\ntair = "AIR_T"\n'
@@ -643,7 +643,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
         utc = idx - pd.Timedelta(hours=site.utc_offset)
         frame = pd.DataFrame({
             "time_start": utc.strftime("%Y-%m-%dT%H:%M:%SZ"), "nee": fmt(data.nee, 3, ""),
-            "sw_in": fmt(data.rg, 1, ""), "t_air": fmt(data.tair, 2, ""),
+            "sw_down": fmt(data.rg, 1, ""), "t_air": fmt(data.tair, 2, ""),
             "vpd_pa": fmt(data.vpd * 100, 0, ""), "u_star": fmt(data.ustar, 3, ""),
             "t_soil": fmt(data.tsoil, 2, "")})
         names = []
@@ -656,7 +656,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
         text = toml(site, f'path = {names!r}\ndelimiter = "\\t"\n'.replace("'", '"')
                     + 'time_column = "time_start"\ntime_format = "%Y-%m-%dT%H:%M:%SZ"\n'
                     'time_marks = "start"\n',
-                    'nee = "nee"\nrg = "sw_in"\ntair = "t_air"\nvpd = "vpd_pa"\n'
+                    'nee = "nee"\nrg = "sw_down"\ntair = "t_air"\nvpd = "vpd_pa"\n'
                     'ustar = "u_star"\ntsoil = "t_soil"\n', 'vpd = "Pa"\n', extra)
     else:  # Q: date and time columns, start stamps, RH as a fraction
         frame = pd.DataFrame({

@@ -507,7 +507,7 @@ NAMES = {
                     tsoil="TSOIL"),
     "iso_offset": dict(nee="netflux_gC", rg="rad_short", tair="airtemp", rh="humid_frac",
                        ustar="ufric", tsoil="soiltemp"),
-    "doy_hhmm": dict(nee="CFLX", ppfd="PARIN", tair="TA", vpd="DEF", ustar="USR", tsoil="TSK"),
+    "doy_hhmm": dict(nee="CFLX", ppfd="PARIN", tair="T_AIR", vpd="DEF", ustar="USR", tsoil="TSK"),
     "absent_rows": dict(nee="co2mg", rg="rsd", tair="tc", vpd="vpdk", ustar="ust", tsoil="tsc"),
 }
 MISSING_CODE = -7999.0
@@ -594,12 +594,12 @@ def write_site(site, frame, folder):
                 names["tair"]: frame["tair"], names["vpd"]: frame["vpd"].to_numpy() / 10,
                 names["ustar"]: frame["ustar"], names["tsoil"]: frame["tsoil"]}
         out = pd.DataFrame({k: np.asarray(v) for k, v in cols.items()})
-        out.insert(0, "ts", starts.strftime("%Y%m%d%H%M"))
+        out.insert(0, "logger_stamp", starts.strftime("%Y%m%d%H%M"))
         out = out[keep]
         path = folder / f"{base}.csv"
         out.to_csv(path, index=False, float_format="%.5f", na_rep="-9999")
-        toml_input = dict(time_column='"ts"', time_format='"%Y%m%d%H%M"', time_marks='"start"',
-                          missing="[-9999]")
+        toml_input = dict(time_column='"logger_stamp"', time_format='"%Y%m%d%H%M"',
+                          time_marks='"start"', missing="[-9999]")
         units = dict(nee='"mg CO2 m-2 s-1"', vpd='"kPa"')
     lines = [f"# {site.name}: FICTIONAL site, data invented by tests/benchmarks/trial_fourth.py",
              "[site]", f'name = "{site.name} {site.year}"', f"latitude = {site.lat}",

@@ -545,7 +545,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing="", vari
         end = data.index + step
         frame = pd.DataFrame({
             "yr": end.strftime("%Y"), "jday": end.strftime("%j"), "hm": end.strftime("%H:%M"),
-            "nee_ec": fmt(data.nee, 3, "-999"), "ppfd_in": fmt(data.rg * 2.05, 1, "-999"),
+            "nee_ec": fmt(data.nee, 3, "-999"), "par_in": fmt(data.rg * 2.05, 1, "-999"),
             "tair_28m": fmt(data.tair, 2, "-999"), "rh_28m": fmt(data.rh, 1, "-999"),
             "ustar_28m": fmt(data.ustar, 3, "-999"), "tsoil_5": fmt(data.tsoil, 2, "-999")})
         units = "- - - umol/m2/s umol/m2/s degC % m/s degC"
@@ -559,7 +559,7 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing="", vari
                       'delimiter = "whitespace"\nrows_after_header = 1\n'
                       'time_column = ["yr", "jday", "hm"]\ntime_format = "%Y %j %H:%M"\n'
                       'time_marks = "end"\nmissing = [-999]\n',
-                      'nee = "nee_ec"\nppfd = "ppfd_in"\ntair = "tair_28m"\nrh = "rh_28m"\n'
+                      'nee = "nee_ec"\nppfd = "par_in"\ntair = "tair_28m"\nrh = "rh_28m"\n'
                       'ustar = "ustar_28m"\ntsoil = "tsoil_5"\n', processing=processing)
     elif k == "K":   # semicolons, three lines of station notes, start stamps "2021.01.01
         # 00.30", air temperature in kelvin, -99.99 missing

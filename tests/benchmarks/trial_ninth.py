@@ -703,20 +703,20 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing: str = "
     if site.key == "D":  # 15-minute logger, compact start stamps; the user's 30-min file
         for tag, part in (("15", data), ("30", to_30min(data))):
             body = pd.DataFrame({
-                "TIMESTAMP_START": part.index.strftime("%Y%m%d%H%M"),
+                "stamp_start": part.index.strftime("%Y%m%d%H%M"),
                 "co2_flux": fmt(part.nee, 3, "-9999"), "sw_down": fmt(part.rg, 1, "-9999"),
-                "TA": fmt(part.tair, 2, "-9999"), "VPD": fmt(part.vpd, 2, "-9999"),
+                "T_AIR": fmt(part.tair, 2, "-9999"), "VPD": fmt(part.vpd, 2, "-9999"),
                 "u_fric": fmt(part.ustar, 3, "-9999"), "t_soil5": fmt(part.tsoil, 2, "-9999"),
             })
             body.to_csv(folder / f"hollenbrunn_{tag}min.csv", index=False)
             text = toml_site(site, f"""path = "hollenbrunn_{tag}min.csv"
-time_column = "TIMESTAMP_START"
+time_column = "stamp_start"
 time_format = "%Y%m%d%H%M"
 time_marks = "start"
 missing = [-9999]
 """, """nee = "co2_flux"
 rg = "sw_down"
-tair = "TA"
+tair = "T_AIR"
 vpd = "VPD"
 ustar = "u_fric"
 tsoil = "t_soil5"
@@ -822,7 +822,7 @@ nee_flag = "qc_sector"
         stamps = idx + step
         body = pd.DataFrame({
             "END": stamps.strftime("%Y-%m-%d %H:%M"), "NEE": fmt(data.nee, 3, "NA"),
-            "RG": fmt(data.rg, 1, "NA"), "TA": fmt(data.tair, 2, "NA"),
+            "RG": fmt(data.rg, 1, "NA"), "T_AIR": fmt(data.tair, 2, "NA"),
             "RH": fmt(data.rh, 1, "NA"), "u_fric": fmt(data.ustar, 3, "NA"),
             "t_soil5": fmt(data.tsoil, 2, "NA"),
         })
@@ -834,7 +834,7 @@ time_marks = "end"
 missing = ["NA"]
 """, """nee = "NEE"
 rg = "RG"
-tair = "TA"
+tair = "T_AIR"
 rh = "RH"
 ustar = "u_fric"
 tsoil = "t_soil5"

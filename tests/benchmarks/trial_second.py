@@ -637,13 +637,13 @@ def write_site(s: SiteYear, frame: pd.DataFrame, folder: Path) -> Path:
         out = pd.DataFrame({"when": t.strftime("%Y-%m-%dT%H:%M")})
         if lay == "comma_kelvin_ppfd":
             out["fco2"] = _num(f["nee"], 3)
-            out["ppfd_in"] = _num(f["ppfd"], 1)
+            out["par_in"] = _num(f["ppfd"], 1)
             out["t_air_K"] = _num(f["tair"] + 273.15, 2)
             out["vpd_kPa"] = _num(f["vpd"] / 10, 4)
             out["u_fric"] = _num(f["ustar"], 3)
             out["t_soil_K"] = _num(f["tsoil"] + 273.15, 2)
             out["qc_co2"] = f["flag"].to_numpy()
-            cols = dict(nee="fco2", ppfd="ppfd_in", tair="t_air_K", vpd="vpd_kPa", ustar="u_fric",
+            cols = dict(nee="fco2", ppfd="par_in", tair="t_air_K", vpd="vpd_kPa", ustar="u_fric",
                         tsoil="t_soil_K", nee_flag="qc_co2")
             extra_units = dict(tair="K", tsoil="K", vpd="kPa")
             extra_input["flag_accept"] = [0, 1]
@@ -651,12 +651,12 @@ def write_site(s: SiteYear, frame: pd.DataFrame, folder: Path) -> Path:
             out["flux_turb"] = _num(f["nee"], 3)
             out["flux_stor"] = _num(f["storage"], 3)
             out["rg"] = _num(f["rg"], 1)
-            out["ta_c"] = _num(f["tair"], 2)
+            out["t_air_c"] = _num(f["tair"], 2)
             out["vpd_kpa"] = _num(f["vpd"] / 10, 4)
             out["ustar"] = _num(f["ustar"], 3)
-            out["ts_c"] = _num(f["tsoil"], 2)
-            cols = dict(nee="flux_turb", storage="flux_stor", rg="rg", tair="ta_c", vpd="vpd_kpa",
-                        ustar="ustar", tsoil="ts_c")
+            out["t_soil_c"] = _num(f["tsoil"], 2)
+            cols = dict(nee="flux_turb", storage="flux_stor", rg="rg", tair="t_air_c",
+                        vpd="vpd_kpa", ustar="ustar", tsoil="t_soil_c")
             extra_units = dict(vpd="kPa")
         out = out.fillna(-9999)
         out[keep].to_csv(folder / "tower.csv", index=False)
@@ -708,13 +708,14 @@ def write_site(s: SiteYear, frame: pd.DataFrame, folder: Path) -> Path:
     elif lay == "utc_iso_pa":
         t = _stamps(s, f.index, "end", "UTC")
         out = pd.DataFrame({"time_utc": t.strftime("%Y-%m-%dT%H:%M:%SZ"),
-                            "fc": _num(f["nee"], 3), "swin": _num(f["rg"], 1),
-                            "ta": _num(f["tair"], 2), "vpd_pa": _num(f["vpd"] * 100, 1),
-                            "us": _num(f["ustar"], 3), "ts": _num(f["tsoil"], 2)})
+                            "co2_flux": _num(f["nee"], 3), "swin": _num(f["rg"], 1),
+                            "t_air": _num(f["tair"], 2), "vpd_pa": _num(f["vpd"] * 100, 1),
+                            "us": _num(f["ustar"], 3), "t_soil": _num(f["tsoil"], 2)})
         out[keep].to_csv(folder / "flux_utc.csv", index=False, na_rep="")
         inp = dict(path="flux_utc.csv", time_column="time_utc", time_format="ISO8601",
                    time_marks="end", missing=[])
-        cols = dict(nee="fc", rg="swin", tair="ta", vpd="vpd_pa", ustar="us", tsoil="ts")
+        cols = dict(nee="co2_flux", rg="swin", tair="t_air", vpd="vpd_pa", ustar="us",
+                    tsoil="t_soil")
         extra_units = dict(vpd="Pa")
     elif lay in ("civil_dst_glob", "civil_dst_sydney"):
         zone = "Europe/Berlin" if lay == "civil_dst_glob" else "Australia/Sydney"

@@ -648,23 +648,23 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
         end = idx + step
         frame = pd.DataFrame({
             "Zeitstempel": end.strftime("%Y-%m-%d %H:%M:%S"), "co2_net": fmt(data.nee, 3, "NAN"),
-            "SW_in": fmt(data.rg, 1, "NAN"), "T_luft": fmt(data.tair, 2, "NAN"),
+            "SW_ein": fmt(data.rg, 1, "NAN"), "T_luft": fmt(data.tair, 2, "NAN"),
             "RH_luft": fmt(data.rh, 1, "NAN"), "u_stern": fmt(data.ustar, 3, "NAN"),
             "T_boden_5": fmt(data.tsoil, 2, "NAN")})
-        units_line = "TS,umol/m2/s,W/m2,degC,%,m/s,degC"
+        units_line = "Zeit,umol/m2/s,W/m2,degC,%,m/s,degC"
         body = frame.to_csv(index=False).splitlines()
         text_lines = ["Hochtann Hangstation 3; Mittelwerte 30 min", body[0], units_line] + body[1:]
         (folder / "hochtann_30min.csv").write_text("\n".join(text_lines) + "\n")
         text = toml(site, 'path = "hochtann_30min.csv"\nrows_before_header = 1\n'
                     'rows_after_header = 1\ntime_column = "Zeitstempel"\n'
                     'time_format = "%Y-%m-%d %H:%M:%S"\ntime_marks = "end"\nmissing = ["NAN"]\n',
-                    'nee = "co2_net"\nrg = "SW_in"\ntair = "T_luft"\nrh = "RH_luft"\n'
+                    'nee = "co2_net"\nrg = "SW_ein"\ntair = "T_luft"\nrh = "RH_luft"\n'
                     'ustar = "u_stern"\ntsoil = "T_boden_5"\n', processing=processing)
     elif k == "E":  # monthly files in year folders, ISO 8601 with offsets, VPD in Pa, flag
         frame = pd.DataFrame({
             "time_begin": idx.strftime("%Y-%m-%dT%H:%M:00+01:00"),
             "fco2": fmt(data.nee, 3, ""), "qc": data.flag.astype(int),
-            "swin": fmt(data.rg, 1, ""), "ta": fmt(data.tair, 2, ""),
+            "swin": fmt(data.rg, 1, ""), "t_air": fmt(data.tair, 2, ""),
             "vpd_pa": fmt(data.vpd * 100, 0, ""), "ustar": fmt(data.ustar, 3, ""),
             "ts5": fmt(data.tsoil, 2, ""), "wdir": fmt(data.direction, 0, "")})
         for (y, m), part in frame.groupby([idx.year, idx.month]):
@@ -673,7 +673,7 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
             part.to_csv(sub / f"edge_{y}_{m:02d}.csv", index=False)
         text = toml(site, 'path = "edge/**/*.csv"\ntime_column = "time_begin"\n'
                     'time_format = "ISO8601"\ntime_marks = "start"\nflag_accept = [0, 1]\n',
-                    'nee = "fco2"\nnee_flag = "qc"\nrg = "swin"\ntair = "ta"\nvpd = "vpd_pa"\n'
+                    'nee = "fco2"\nnee_flag = "qc"\nrg = "swin"\ntair = "t_air"\nvpd = "vpd_pa"\n'
                     'ustar = "ustar"\ntsoil = "ts5"\n', 'vpd = "Pa"\n', processing)
     elif k == "A":  # the raw kinematic file, and the user's converted file with year/DOY/hhmm
         raw_t = data.tair.to_numpy()
@@ -733,7 +733,7 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
         frame = pd.DataFrame({
             "LocalTime": civil.strftime("%d/%m/%Y %H:%M"),
             "co2_turb": fmt(data.nee - data.storage, 3, "-9999"), "co2_store": fmt(data.storage, 3, "-9999"),
-            "sw_in": fmt(data.rg, 1, "-9999"), "air_c": fmt(data.tair, 2, "-9999"),
+            "sw_down": fmt(data.rg, 1, "-9999"), "air_c": fmt(data.tair, 2, "-9999"),
             "rh_pct": fmt(data.rh, 1, "-9999"), "ustar": fmt(data.ustar, 3, "-9999"),
             "soil_c": fmt(data.tsoil, 2, "-9999")})
         with gzip.open(folder / "weldriver.csv.gz", "wt") as handle:
@@ -741,7 +741,7 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
         text = toml(site, 'path = "weldriver.csv.gz"\ntime_column = "LocalTime"\n'
                     'time_format = "%d/%m/%Y %H:%M"\ntime_marks = "start"\n'
                     'time_zone = "Australia/Hobart"\nmissing = [-9999]\n',
-                    'nee = "co2_turb"\nstorage = "co2_store"\nrg = "sw_in"\ntair = "air_c"\n'
+                    'nee = "co2_turb"\nstorage = "co2_store"\nrg = "sw_down"\ntair = "air_c"\n'
                     'rh = "rh_pct"\nustar = "ustar"\ntsoil = "soil_c"\n', processing=processing)
     name = f"site_{k}.toml"
     (folder / name).write_text(text)

@@ -709,7 +709,7 @@ tsoil = "tsoil_5"
         body = pd.DataFrame({
             "UTC_start": stamps.strftime("%Y-%m-%d %H:%M"),
             "co2_flux": fmt(data.nee, 3, "NaN"),
-            "PPFD_in": fmt(np.where(data.rg > 0, 2.10 * data.rg, data.rg), 1, "NaN"),
+            "PAR_in": fmt(np.where(data.rg > 0, 2.10 * data.rg, data.rg), 1, "NaN"),
             "T_air": fmt(data.tair, 2, "NaN"), "vpd_hPa": fmt(data.vpd, 2, "NaN"),
             "u_star": fmt(data.ustar, 3, "NaN"), "T_soil": fmt(data.tsoil, 2, "NaN"),
         })
@@ -724,7 +724,7 @@ time_marks = "start"
 time_zone = "UTC"
 missing = ["NaN"]
 """, """nee = "co2_flux"
-ppfd = "PPFD_in"
+ppfd = "PAR_in"
 tair = "T_air"
 vpd = "vpd_hPa"
 ustar = "u_star"

@@ -593,8 +593,8 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
             "Europe/Paris")
         flag = np.where(np.isnan(data.nee), 2, np.where(data.ustar < 0.08, 1, 0))
         body = pd.DataFrame({
-            "horodatage": civil.strftime("%Y-%m-%d %H:%M"), "fc": fmt(data.nee, 3, "-9999"),
-            "qc_fc": flag, "rayonnement": fmt(data.rg, 1, "-9999"),
+            "horodatage": civil.strftime("%Y-%m-%d %H:%M"), "co2_flux": fmt(data.nee, 3, "-9999"),
+            "qc_co2_flux": flag, "rayonnement": fmt(data.rg, 1, "-9999"),
             "t_air": fmt(data.tair, 2, "-9999"), "dpv": fmt(data.vpd, 2, "-9999"),
             "u_etoile": fmt(data.ustar, 3, "-9999"), "t_sol": fmt(data.tsoil, 2, "-9999")})
         (folder / "vermeil").mkdir(exist_ok=True)
@@ -608,7 +608,7 @@ time_marks = "start"
 time_zone = "Europe/Paris"
 missing = [-9999]
 flag_accept = [0, 1]
-""", 'nee = "fc"\nnee_flag = "qc_fc"\nrg = "rayonnement"\ntair = "t_air"\nvpd = "dpv"\n'
+""", 'nee = "co2_flux"\nnee_flag = "qc_co2_flux"\nrg = "rayonnement"\ntair = "t_air"\nvpd = "dpv"\n'
             'ustar = "u_etoile"\ntsoil = "t_sol"\n', processing=processing)
     elif site.key == "B":  # g C per record, kW m-2, day-first with dashes, end stamps
         end = idx + step
@@ -652,7 +652,7 @@ missing = ["NAN"]
         body = pd.DataFrame({
             "Timestamp": idx.strftime("%m/%d/%Y %H:%M"),
             "CO2_flux": fmt(data.nee * MG_CO2_PER_UMOL, 5, "NA"),
-            "SW_in": fmt(data.rg, 1, "NA"), "AirTemp_F": fmt(data.tair * 1.8 + 32, 1, "NA"),
+            "SW_down": fmt(data.rg, 1, "NA"), "AirTemp_F": fmt(data.tair * 1.8 + 32, 1, "NA"),
             "VPD_kPa": fmt(data.vpd / 10, 3, "NA"), "Ustar": fmt(data.ustar, 3, "NA"),
             "SoilTemp_F": fmt(data.tsoil * 1.8 + 32, 1, "NA")})
         body.to_csv(folder / "kalanui_cane.csv", index=False)
@@ -661,20 +661,20 @@ time_column = "Timestamp"
 time_format = "%m/%d/%Y %H:%M"
 time_marks = "start"
 missing = ["NA"]
-""", 'nee = "CO2_flux"\nrg = "SW_in"\ntair = "AirTemp_F"\nvpd = "VPD_kPa"\nustar = "Ustar"\n'
+""", 'nee = "CO2_flux"\nrg = "SW_down"\ntair = "AirTemp_F"\nvpd = "VPD_kPa"\nustar = "Ustar"\n'
             'tsoil = "SoilTemp_F"\n',
             'nee = "mg CO2 m-2 s-1"\ntair = "degF"\ntsoil = "degF"\nvpd = "kPa"\n', processing)
     elif site.key == "E":  # UTC stamps, turbulent flux and storage apart, VPD in kPa
         utc = idx - pd.Timedelta(hours=site.utc_offset) + step
         body = pd.DataFrame({
-            "TIMESTAMP_UTC": utc.strftime("%Y-%m-%d %H:%M:%S"),
+            "stamp_utc": utc.strftime("%Y-%m-%d %H:%M:%S"),
             "co2_flx": fmt(data.nee, 3, "-9999"), "co2_stor": fmt(data.storage, 3, "-9999"),
             "Rg": fmt(data.rg, 1, "-9999"), "t_air2": fmt(data.tair, 2, "-9999"),
             "VPD": fmt(data.vpd / 10, 3, "-9999"), "Ustar": fmt(data.ustar, 3, "-9999"),
             "tsoil_5": fmt(data.tsoil, 2, "-9999")})
         body.to_csv(folder / "kijani_flux.csv", index=False)
         text = toml(site, """path = "kijani_flux.csv"
-time_column = "TIMESTAMP_UTC"
+time_column = "stamp_utc"
 time_format = "%Y-%m-%d %H:%M:%S"
 time_marks = "end"
 time_zone = "UTC"

@@ -808,14 +808,14 @@ time_marks = "start"
                                 (second, step, "holmvik_2022.csv")):
             body = pd.DataFrame({"stamp_end": (part.index + st).strftime("%Y-%m-%d %H:%M")})
             for c, dec in cols.items():
-                body[c.upper()] = fmt(part[c], dec, "-9999")
+                body["U_FRIC" if c == "ustar" else c.upper()] = fmt(part[c], dec, "-9999")
             body.to_csv(folder / fname, index=False)
         text = toml(site, """path = ["holmvik_2021.csv", "holmvik_2022.csv"]
 time_column = "stamp_end"
 time_format = "%Y-%m-%d %H:%M"
 time_marks = "end"
 missing = [-9999]
-""", 'nee = "NEE"\nrg = "RG"\ntair = "TAIR"\nvpd = "VPD"\nustar = "USTAR"\ntsoil = "TSOIL"\n',
+""", 'nee = "NEE"\nrg = "RG"\ntair = "TAIR"\nvpd = "VPD"\nustar = "U_FRIC"\ntsoil = "TSOIL"\n',
             processing=processing)
     else:
         raise ValueError(site.key)
@@ -852,16 +852,17 @@ def write_steppe(site, data, folder, processing):
         return pd.DataFrame({
             "time_end": end.strftime("%Y-%m-%dT%H:%M") + utc_label,
             "co2_flux": fmt(frame.nee, 3, "-9999"), "sw_down": fmt(frame.rg, 1, "-9999"),
-            "TA_K": fmt(frame.tair + 273.15, 2, "-9999"), "VPD_PA": fmt(frame.vpd * 100, 0, "-9999"),
-            "u_fric": fmt(frame.ustar, 3, "-9999"), "TS_K": fmt(frame.tsoil + 273.15, 2, "-9999")})
+            "T_AIR_K": fmt(frame.tair + 273.15, 2, "-9999"),
+            "VPD_PA": fmt(frame.vpd * 100, 0, "-9999"), "u_fric": fmt(frame.ustar, 3, "-9999"),
+            "T_SOIL_K": fmt(frame.tsoil + 273.15, 2, "-9999")})
 
     inp = """time_column = "time_end"
 time_format = "%Y-%m-%dT%H:%M%z"
 time_marks = "end"
 missing = [-9999]
 """
-    cols = ('nee = "co2_flux"\nrg = "sw_down"\ntair = "TA_K"\nvpd = "VPD_PA"\nustar = "u_fric"\n'
-            'tsoil = "TS_K"\n')
+    cols = ('nee = "co2_flux"\nrg = "sw_down"\ntair = "T_AIR_K"\nvpd = "VPD_PA"\nustar = "u_fric"\n'
+            'tsoil = "T_SOIL_K"\n')
     units = 'tair = "K"\ntsoil = "K"\nvpd = "Pa"\n'
     body_of(raw, 10).to_csv(folder / "overo_10min.csv", index=False)
     (folder / "site_S_10min.toml").write_text(
