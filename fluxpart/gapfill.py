@@ -522,8 +522,9 @@ class _RankTables:
             self._taken[key] = (array, array[self.usable])
         return self._taken[key][1]
 
-    def keys(self, p, q, lower, upper):
-        """(rank key, low, high) per driver for the window of usable positions [p, q)."""
+    def covering(self, p, q):
+        """(tables, offset) of the span's or a segment's table holding the usable positions
+        [p, q), or None where none does (a range longer than a segment can be)."""
         span = self._span
         if span is not None and span[0] <= p and q <= span[1]:
             # every window of the step lies in one span of usable positions: one table
@@ -532,22 +533,33 @@ class _RankTables:
             if "span" not in self._tables:
                 self._tables["span"] = [_ranked(driver[span[0]:span[1]])
                                         for driver in self._drivers]
-            tables, offset = self._tables["span"], span[0]
-        elif q - p > self._SEGMENT:  # a window wider than a segment: rank it on its own
-            tables, offset = [_ranked(driver[p:q]) for driver in self._drivers], p
-        else:
-            k = p // self._SEGMENT
-            offset = k * self._SEGMENT
-            if k not in self._tables:
-                self._tables[k] = [_ranked(driver[offset:offset + 2 * self._SEGMENT])
-                                   for driver in self._drivers]
-            tables = self._tables[k]
-        out = []
-        for (rank, ordered), low, high in zip(tables, lower, upper, strict=True):
-            out.append((rank[p - offset:q - offset],
-                        np.searchsorted(ordered, low, side="left").astype(rank.dtype),
-                        np.searchsorted(ordered, high, side="right").astype(rank.dtype)))
-        return out
+            return self._tables["span"], span[0]
+        k = p // self._SEGMENT
+        offset = k * self._SEGMENT
+        if q > offset + 2 * self._SEGMENT:
+            return None
+        if k not in self._tables:
+            self._tables[k] = [_ranked(driver[offset:offset + 2 * self._SEGMENT])
+                               for driver in self._drivers]
+        return self._tables[k], offset
+
+    @staticmethod
+    def bounds(tables, lower, upper):
+        """(ranks, low, high) per driver of `tables`: the ranks of its records and those of
+        the bounds `lower`, `upper` (one per gap) as keys of :func:`_similar_runs`."""
+        return [(rank, np.searchsorted(ordered, low, side="left").astype(rank.dtype),
+                 np.searchsorted(ordered, high, side="right").astype(rank.dtype))
+                for (rank, ordered), low, high in zip(tables, lower, upper, strict=True)]
+
+    def keys(self, p, q, lower, upper):
+        """(rank key, low, high) per driver for the window of usable positions [p, q)."""
+        found = self.covering(p, q) if q - p <= self._SEGMENT else None
+        if found is None:
+            # a window wider than a segment (outside the span): ranked on its own
+            found = [_ranked(driver[p:q]) for driver in self._drivers], p
+        tables, offset = found
+        return [(rank[p - offset:q - offset], low, high)
+                for rank, low, high in self.bounds(tables, lower, upper)]
 
 
 def _block_records(n_gaps, gap_span, half_width):
@@ -607,6 +619,14 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
     # records, slope counts), records as positions in ``usable``.
     pending, pending_records = [], 0
 
+    # Where one table holds every window of the pass, the bounds' ranks of all gaps at once
+    # (any table holding a window gives the same decisions)
+    covering = tables.covering(time_low[0], time_high[-1])
+    if covering is not None:
+        offset = covering[1]
+        narrow = tables.bounds(covering[0], lowers, uppers)
+        wide = tables.bounds(covering[0], wide_lowers, wide_uppers) if local_linear else []
+
     def add_corrections(blocks):
         rows, *runs = (np.concatenate(parts) for parts in zip(*blocks, strict=True))
         mean[rows] += _corrections_of_runs(usable_values, usable_drivers, slope_drivers,
@@ -620,7 +640,11 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
         position = np.arange(width, dtype=np.min_scalar_type(width))
         keys = [(position, (time_low[a:b] - p).astype(position.dtype),
                  (time_high[a:b] - p).astype(position.dtype))]
-        keys += tables.keys(p, q, [x[a:b] for x in lowers], [x[a:b] for x in uppers])
+        if covering is None:
+            keys += tables.keys(p, q, [x[a:b] for x in lowers], [x[a:b] for x in uppers])
+        else:
+            keys += [(rank[p - offset:q - offset], low[a:b], high[a:b])
+                     for rank, low, high in narrow]
         column, n_similar = _similar_runs(keys, n_rows, width)
         if column.size == 0:
             continue
@@ -636,9 +660,13 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
         spread[rows] = np.sqrt(np.add.reduceat(residual * residual, run_starts) / n_found)
         if local_linear:
             # the slope records of the gaps with donors: the same window, wider bounds
-            wide_keys = keys[:1] + tables.keys(p, q, [x[a:b] for x in wide_lowers],
-                                               [x[a:b] for x in wide_uppers])
-            wide_keys = [(key, low[found], high[found]) for key, low, high in wide_keys]
+            if covering is None:
+                wide_keys = tables.keys(p, q, [x[a:b] for x in wide_lowers],
+                                        [x[a:b] for x in wide_uppers])
+            else:
+                wide_keys = [(rank[p - offset:q - offset], low[a:b], high[a:b])
+                             for rank, low, high in wide]
+            wide_keys = [(key, low[found], high[found]) for key, low, high in keys[:1] + wide_keys]
             column_w, n_w = _similar_runs(wide_keys, n_found.size, width)
             pending.append((rows, p + column, n_found, p + column_w, n_w))
             pending_records += column_w.size
