@@ -157,7 +157,12 @@ def light_dependence(nee, is_night, light, temperatures, index) -> pd.DataFrame:
     The effective number of spatial degrees of freedom of a time-varying field. Journal
     of Climate 12, 1990–2009 (m).
     """
-    nights = _night_means(nee, is_night, light, temperatures, index)
+    return _dependence_table(_night_means(nee, is_night, light, temperatures,
+                                          _evening_days(index)))
+
+
+def _dependence_table(nights) -> pd.DataFrame:
+    """:func:`light_dependence`'s table of the nights of :func:`_night_means`."""
     rows = {}
     for year in np.unique(nights["year"]):
         inside = nights["year"] == year
@@ -196,8 +201,13 @@ def tested_regressor(light, index, tests) -> np.ndarray:
     numpy.ndarray
         `light` in the passed years (of the night's evening, as tested), NaN elsewhere.
     """
+    return _passed_years_only(light, _evening_days(index), tests)
+
+
+def _passed_years_only(light, evening, tests) -> np.ndarray:
+    """:func:`tested_regressor` of the records' evenings (:func:`_evening_days`)."""
     passed = tests.index[tests["passed"].to_numpy(dtype=bool)].to_numpy()
-    first, day = _evening_days(index)
+    first, day = evening
     # the year of each evening day, then of each record
     years = _calendar_year(first + np.arange(int(day.max()) + 1 if day.size else 0))[day]
     return np.where(np.isin(years, passed), np.asarray(light, dtype=float), np.nan)
@@ -228,10 +238,11 @@ def _day_of_year(dates) -> np.ndarray:
     return (dates - dates.astype("datetime64[Y]").astype("datetime64[D]")).astype(np.int64) + 1
 
 
-def _night_means(nee, is_night, light, temperatures, index) -> dict:
+def _night_means(nee, is_night, light, temperatures, evening) -> dict:
     """Per night with a measured record, in order: ``year``, ``doy`` (of its evening),
     ``nee`` and ``t0``, ``t1``, ... (the means over its measured records with every
-    driver) and ``anomaly`` (its light's anomaly from the fortnight's), as arrays."""
+    driver) and ``anomaly`` (its light's anomaly from the fortnight's), as arrays;
+    `evening`: the records' evenings (:func:`_evening_days`)."""
     nee = np.asarray(nee, dtype=float)
     light = np.asarray(light, dtype=float)
     night = np.asarray(is_night, dtype=bool)
@@ -242,7 +253,7 @@ def _night_means(nee, is_night, light, temperatures, index) -> dict:
     if not usable.any():
         return {name: np.empty(0) for name in ("year", "doy", "nee", "anomaly",
                                                *(f"t{j}" for j in range(len(drivers))))}
-    first, day = _evening_days(index)
+    first, day = evening
     # the light of a night: the mean of its night records' preceding 24 h, and the
     # fortnight's running mean of that daily series
     night_light = _daily_means(light, day, night & ~np.isnan(light))
@@ -361,8 +372,10 @@ def gated_conditions(conditions, nee, is_night, index) -> tuple:
     temperatures = [conditions[name].to_numpy(dtype=float) for name in ("tair", "tsoil")
                     if name in conditions.columns]
     light = conditions[COLUMN].to_numpy(dtype=float)
-    tests = light_dependence(nee, is_night, light, temperatures, index)
-    regressor = tested_regressor(light, index, tests)
+    # the records' evenings once for the test and the regressor
+    evening = _evening_days(index)
+    tests = _dependence_table(_night_means(nee, is_night, light, temperatures, evening))
+    regressor = _passed_years_only(light, evening, tests)
     if np.isnan(regressor).all():
         return conditions.drop(columns=COLUMN), tests
     return conditions.assign(**{COLUMN: regressor}), tests

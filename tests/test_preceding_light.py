@@ -96,7 +96,8 @@ def test_false_calls_near_the_level_where_nights_have_no_dependence():
 def test_the_slope_is_ordinary_least_squares_of_statsmodels(rng):
     # reference: statsmodels OLS on the same night means and block columns
     index, nee, is_night, light, tair = _year(rng, 0.5)
-    nights = preceding_light._night_means(nee, is_night, light, [tair], index)
+    nights = preceding_light._night_means(nee, is_night, light, [tair],
+                                          preceding_light._evening_days(index))
     nights = {name: values[nights["year"] == 2021] for name, values in nights.items()}
     got = preceding_light._year_test(nights)
     block = np.minimum((nights["doy"] - 1) // preceding_light.BLOCK_DAYS,
