@@ -522,44 +522,48 @@ class _RankTables:
             self._taken[key] = (array, array[self.usable])
         return self._taken[key][1]
 
-    def covering(self, p, q):
-        """(tables, offset) of the span's or a segment's table holding the usable positions
-        [p, q), or None where none does (a range longer than a segment can be)."""
+    def table_key(self, p, q):
+        """Key of the table that ranks the window of usable positions [p, q): ``"span"``
+        where the span holds it, None where it is wider than a segment (ranked on its
+        own), else its segment's number."""
         span = self._span
         if span is not None and span[0] <= p and q <= span[1]:
             # every window of the step lies in one span of usable positions: one table
             # ranks just that span (a few long gaps need a few thousand records ranked,
             # not segments of 65,534)
-            if "span" not in self._tables:
-                self._tables["span"] = [_ranked(driver[span[0]:span[1]])
-                                        for driver in self._drivers]
-            return self._tables["span"], span[0]
-        k = p // self._SEGMENT
-        offset = k * self._SEGMENT
-        if q > offset + 2 * self._SEGMENT:
+            return "span"
+        if q - p > self._SEGMENT:
             return None
-        if k not in self._tables:
-            self._tables[k] = [_ranked(driver[offset:offset + 2 * self._SEGMENT])
-                               for driver in self._drivers]
-        return self._tables[k], offset
+        return p // self._SEGMENT
 
-    @staticmethod
-    def bounds(tables, lower, upper):
-        """(ranks, low, high) per driver of `tables`: the ranks of its records and those of
-        the bounds `lower`, `upper` (one per gap) as keys of :func:`_similar_runs`."""
+    def table(self, key):
+        """(tables, offset) of :meth:`table_key`'s `key` (not None), built when first asked."""
+        if key == "span":
+            start, stop = self._span
+        else:
+            start, stop = key * self._SEGMENT, (key + 2) * self._SEGMENT
+        if key not in self._tables:
+            self._tables[key] = [_ranked(driver[start:stop]) for driver in self._drivers]
+        return self._tables[key], start
+
+    def bounds(self, key, lower, upper):
+        """(ranks, low, high) per driver of the table `key` (:meth:`table_key`; None: of
+        the ``(tables, offset)`` given as `key`), and its offset: the table's ranks and
+        those of the bounds `lower`, `upper` (one per gap), keys of :func:`_similar_runs`
+        once sliced to a window."""
+        tables, offset = self.table(key) if not isinstance(key, tuple) else key
         return [(rank, np.searchsorted(ordered, low, side="left").astype(rank.dtype),
                  np.searchsorted(ordered, high, side="right").astype(rank.dtype))
-                for (rank, ordered), low, high in zip(tables, lower, upper, strict=True)]
+                for (rank, ordered), low, high in zip(tables, lower, upper,
+                                                      strict=True)], offset
 
     def keys(self, p, q, lower, upper):
         """(rank key, low, high) per driver for the window of usable positions [p, q)."""
-        found = self.covering(p, q) if q - p <= self._SEGMENT else None
-        if found is None:
-            # a window wider than a segment (outside the span): ranked on its own
-            found = [_ranked(driver[p:q]) for driver in self._drivers], p
-        tables, offset = found
-        return [(rank[p - offset:q - offset], low, high)
-                for rank, low, high in self.bounds(tables, lower, upper)]
+        key = self.table_key(p, q)
+        if key is None:    # a window wider than a segment: ranked on its own
+            key = ([_ranked(driver[p:q]) for driver in self._drivers], p)
+        bounds, offset = self.bounds(key, lower, upper)
+        return [(rank[p - offset:q - offset], low, high) for rank, low, high in bounds]
 
 
 def _block_records(n_gaps, gap_span, half_width):
@@ -619,20 +623,31 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
     # records, slope counts), records as positions in ``usable``.
     pending, pending_records = [], 0
 
-    # Where one table holds every window of the pass, the bounds' ranks of all gaps at once
-    # (any table holding a window gives the same decisions)
-    covering = tables.covering(time_low[0], time_high[-1])
-    if covering is not None:
-        offset = covering[1]
-        narrow = tables.bounds(covering[0], lowers, uppers)
-        wide = tables.bounds(covering[0], wide_lowers, wide_uppers) if local_linear else []
+    # The bounds' ranks of the gaps of every run of blocks ranked by one table, at once
+    # (a pass of a site-year: one run), not block by block
+    block_tables = [tables.table_key(p, q) for p, q in zip(time_low[starts],
+                                                            time_high[ends - 1], strict=True)]
+    group_end = -1
+
+    def group_bounds(first):
+        """(first gap, last block, offset, narrow and wide bounds) of the run of blocks
+        sharing block `first`'s table."""
+        last = first
+        while last + 1 < len(block_tables) and block_tables[last + 1] == block_tables[first]:
+            last += 1
+        g0, g1 = starts[first], ends[last]
+        narrow, offset = tables.bounds(block_tables[first], [x[g0:g1] for x in lowers],
+                                       [x[g0:g1] for x in uppers])
+        wide = tables.bounds(block_tables[first], [x[g0:g1] for x in wide_lowers],
+                             [x[g0:g1] for x in wide_uppers])[0] if local_linear else []
+        return g0, last, offset, narrow, wide
 
     def add_corrections(blocks):
         rows, *runs = (np.concatenate(parts) for parts in zip(*blocks, strict=True))
         mean[rows] += _corrections_of_runs(usable_values, usable_drivers, slope_drivers,
                                            gaps[rows], *runs)
 
-    for a, b in zip(starts, ends, strict=True):
+    for number, (a, b) in enumerate(zip(starts, ends, strict=True)):
         p, q = time_low[a], time_high[b - 1]
         if p == q:
             continue
@@ -640,10 +655,13 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
         position = np.arange(width, dtype=np.min_scalar_type(width))
         keys = [(position, (time_low[a:b] - p).astype(position.dtype),
                  (time_high[a:b] - p).astype(position.dtype))]
-        if covering is None:
+        grouped = block_tables[number] is not None
+        if not grouped:
             keys += tables.keys(p, q, [x[a:b] for x in lowers], [x[a:b] for x in uppers])
         else:
-            keys += [(rank[p - offset:q - offset], low[a:b], high[a:b])
+            if number > group_end:
+                g0, group_end, offset, narrow, wide = group_bounds(number)
+            keys += [(rank[p - offset:q - offset], low[a - g0:b - g0], high[a - g0:b - g0])
                      for rank, low, high in narrow]
         column, n_similar = _similar_runs(keys, n_rows, width)
         if column.size == 0:
@@ -660,12 +678,12 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
         spread[rows] = np.sqrt(np.add.reduceat(residual * residual, run_starts) / n_found)
         if local_linear:
             # the slope records of the gaps with donors: the same window, wider bounds
-            if covering is None:
+            if not grouped:
                 wide_keys = tables.keys(p, q, [x[a:b] for x in wide_lowers],
                                         [x[a:b] for x in wide_uppers])
             else:
-                wide_keys = [(rank[p - offset:q - offset], low[a:b], high[a:b])
-                             for rank, low, high in wide]
+                wide_keys = [(rank[p - offset:q - offset], low[a - g0:b - g0],
+                              high[a - g0:b - g0]) for rank, low, high in wide]
             wide_keys = [(key, low[found], high[found]) for key, low, high in keys[:1] + wide_keys]
             column_w, n_w = _similar_runs(wide_keys, n_found.size, width)
             pending.append((rows, p + column, n_found, p + column_w, n_w))
