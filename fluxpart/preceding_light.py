@@ -258,20 +258,29 @@ def _night_means(nee, is_night, light, temperatures, evening) -> dict:
     # fortnight's running mean of that daily series
     night_light = _daily_means(light, day, night & ~np.isnan(light))
     anomaly = night_light - _centred_mean(night_light, _ANOMALY_HALF_DAYS)
-    count = np.bincount(day[usable], minlength=night_light.size)
+    # the usable records' days and counts once for NEE and every temperature
+    usable_days = day[usable]
+    count = np.bincount(usable_days, minlength=night_light.size)
     days = np.flatnonzero(count)
     days = days[~np.isnan(anomaly[days])]
     dates = first + days
+
+    def means(values):
+        return _daily_means(values, day, usable, usable_days, count)[days]
+
     return {"year": _calendar_year(dates), "doy": _day_of_year(dates),
-            "nee": _daily_means(nee, day, usable)[days], "anomaly": anomaly[days],
-            **{f"t{j}": _daily_means(t, day, usable)[days] for j, t in enumerate(drivers)}}
+            "nee": means(nee), "anomaly": anomaly[days],
+            **{f"t{j}": means(t) for j, t in enumerate(drivers)}}
 
 
-def _daily_means(values, day, usable) -> np.ndarray:
-    """Mean of `values` over the `usable` records of each day number (NaN without any)."""
+def _daily_means(values, day, usable, usable_days=None, count=None) -> np.ndarray:
+    """Mean of `values` over the `usable` records of each day number (NaN without any);
+    `usable_days` (``day[usable]``) and `count` (their records per day), where known."""
     n_days = int(day[-1]) + 1 if day.size else 0
-    total = np.bincount(day[usable], weights=values[usable], minlength=n_days)
-    count = np.bincount(day[usable], minlength=n_days)
+    if usable_days is None:
+        usable_days = day[usable]
+        count = np.bincount(usable_days, minlength=n_days)
+    total = np.bincount(usable_days, weights=values[usable], minlength=n_days)
     with np.errstate(invalid="ignore", divide="ignore"):
         return total / count
 
