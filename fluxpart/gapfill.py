@@ -547,10 +547,10 @@ class _RankTables:
         return self._tables[key], start
 
     def bounds(self, key, lower, upper):
-        """(ranks, low, high) per driver of the table `key` (:meth:`table_key`; None: of
-        the ``(tables, offset)`` given as `key`), and its offset: the table's ranks and
-        those of the bounds `lower`, `upper` (one per gap), keys of :func:`_similar_runs`
-        once sliced to a window."""
+        """(ranks, low, high) per driver, and the offset, of the table `key`: a key of
+        :meth:`table_key` other than None, or the ``(tables, offset)`` of a window ranked
+        on its own. The table's ranks and those of the bounds `lower`, `upper` (one per
+        gap): keys of :func:`_similar_runs` once the ranks are sliced to a window."""
         tables, offset = self.table(key) if not isinstance(key, tuple) else key
         return [(rank, np.searchsorted(ordered, low, side="left").astype(rank.dtype),
                  np.searchsorted(ordered, high, side="right").astype(rank.dtype))
