@@ -522,32 +522,48 @@ class _RankTables:
             self._taken[key] = (array, array[self.usable])
         return self._taken[key][1]
 
-    def keys(self, p, q, lower, upper):
-        """(rank key, low, high) per driver for the window of usable positions [p, q)."""
+    def table_key(self, p, q):
+        """Key of the table that ranks the window of usable positions [p, q): ``"span"``
+        where the span holds it, None where it is wider than a segment (ranked on its
+        own), else its segment's number."""
         span = self._span
         if span is not None and span[0] <= p and q <= span[1]:
             # every window of the step lies in one span of usable positions: one table
             # ranks just that span (a few long gaps need a few thousand records ranked,
             # not segments of 65,534)
-            if "span" not in self._tables:
-                self._tables["span"] = [_ranked(driver[span[0]:span[1]])
-                                        for driver in self._drivers]
-            tables, offset = self._tables["span"], span[0]
-        elif q - p > self._SEGMENT:  # a window wider than a segment: rank it on its own
-            tables, offset = [_ranked(driver[p:q]) for driver in self._drivers], p
+            return "span"
+        if q - p > self._SEGMENT:
+            return None
+        return p // self._SEGMENT
+
+    def table(self, key):
+        """(tables, offset) of :meth:`table_key`'s `key` (not None), built when first asked."""
+        if key == "span":
+            start, stop = self._span
         else:
-            k = p // self._SEGMENT
-            offset = k * self._SEGMENT
-            if k not in self._tables:
-                self._tables[k] = [_ranked(driver[offset:offset + 2 * self._SEGMENT])
-                                   for driver in self._drivers]
-            tables = self._tables[k]
-        out = []
-        for (rank, ordered), low, high in zip(tables, lower, upper, strict=True):
-            out.append((rank[p - offset:q - offset],
-                        np.searchsorted(ordered, low, side="left").astype(rank.dtype),
-                        np.searchsorted(ordered, high, side="right").astype(rank.dtype)))
-        return out
+            start, stop = key * self._SEGMENT, (key + 2) * self._SEGMENT
+        if key not in self._tables:
+            self._tables[key] = [_ranked(driver[start:stop]) for driver in self._drivers]
+        return self._tables[key], start
+
+    def bounds(self, key, lower, upper):
+        """(ranks, low, high) per driver, and the offset, of the table `key`: a key of
+        :meth:`table_key` other than None, or the ``(tables, offset)`` of a window ranked
+        on its own. The table's ranks and those of the bounds `lower`, `upper` (one per
+        gap): keys of :func:`_similar_runs` once the ranks are sliced to a window."""
+        tables, offset = self.table(key) if not isinstance(key, tuple) else key
+        return [(rank, np.searchsorted(ordered, low, side="left").astype(rank.dtype),
+                 np.searchsorted(ordered, high, side="right").astype(rank.dtype))
+                for (rank, ordered), low, high in zip(tables, lower, upper,
+                                                      strict=True)], offset
+
+    def keys(self, p, q, lower, upper):
+        """(rank key, low, high) per driver for the window of usable positions [p, q)."""
+        key = self.table_key(p, q)
+        if key is None:    # a window wider than a segment: ranked on its own
+            key = ([_ranked(driver[p:q]) for driver in self._drivers], p)
+        bounds, offset = self.bounds(key, lower, upper)
+        return [(rank[p - offset:q - offset], low, high) for rank, low, high in bounds]
 
 
 def _block_records(n_gaps, gap_span, half_width):
@@ -592,7 +608,9 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
     time_high = np.searchsorted(usable, gaps + half_width, side="right")
     usable_values = tables.taken(values)
     slope_drivers = [*conditions, *regressors] if local_linear else []
-    usable_drivers = [tables.taken(driver) for driver, _ in slope_drivers]
+    # the slope drivers at the usable records, one row each
+    usable_drivers = (np.stack([tables.taken(driver) for driver, _ in slope_drivers])
+                      if slope_drivers else None)
     lowers = [driver[gaps] - _at(tolerance, gaps) for driver, tolerance in conditions]
     uppers = [driver[gaps] + _at(tolerance, gaps) for driver, tolerance in conditions]
     # bounds of the local-linear slope records
@@ -605,12 +623,31 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
     # records, slope counts), records as positions in ``usable``.
     pending, pending_records = [], 0
 
+    # The bounds' ranks of the gaps of every run of blocks ranked by one table, at once
+    # (a pass of a site-year: one run), not block by block
+    block_tables = [tables.table_key(p, q) for p, q in zip(time_low[starts],
+                                                            time_high[ends - 1], strict=True)]
+    group_end = -1
+
+    def group_bounds(first):
+        """(first gap, last block, offset, narrow and wide bounds) of the run of blocks
+        sharing block `first`'s table."""
+        last = first
+        while last + 1 < len(block_tables) and block_tables[last + 1] == block_tables[first]:
+            last += 1
+        g0, g1 = starts[first], ends[last]
+        narrow, offset = tables.bounds(block_tables[first], [x[g0:g1] for x in lowers],
+                                       [x[g0:g1] for x in uppers])
+        wide = tables.bounds(block_tables[first], [x[g0:g1] for x in wide_lowers],
+                             [x[g0:g1] for x in wide_uppers])[0] if local_linear else []
+        return g0, last, offset, narrow, wide
+
     def add_corrections(blocks):
         rows, *runs = (np.concatenate(parts) for parts in zip(*blocks, strict=True))
         mean[rows] += _corrections_of_runs(usable_values, usable_drivers, slope_drivers,
                                            gaps[rows], *runs)
 
-    for a, b in zip(starts, ends, strict=True):
+    for number, (a, b) in enumerate(zip(starts, ends, strict=True)):
         p, q = time_low[a], time_high[b - 1]
         if p == q:
             continue
@@ -618,7 +655,14 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
         position = np.arange(width, dtype=np.min_scalar_type(width))
         keys = [(position, (time_low[a:b] - p).astype(position.dtype),
                  (time_high[a:b] - p).astype(position.dtype))]
-        keys += tables.keys(p, q, [x[a:b] for x in lowers], [x[a:b] for x in uppers])
+        grouped = block_tables[number] is not None
+        if not grouped:
+            keys += tables.keys(p, q, [x[a:b] for x in lowers], [x[a:b] for x in uppers])
+        else:
+            if number > group_end:
+                g0, group_end, offset, narrow, wide = group_bounds(number)
+            keys += [(rank[p - offset:q - offset], low[a - g0:b - g0], high[a - g0:b - g0])
+                     for rank, low, high in narrow]
         column, n_similar = _similar_runs(keys, n_rows, width)
         if column.size == 0:
             continue
@@ -634,9 +678,13 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
         spread[rows] = np.sqrt(np.add.reduceat(residual * residual, run_starts) / n_found)
         if local_linear:
             # the slope records of the gaps with donors: the same window, wider bounds
-            wide_keys = keys[:1] + tables.keys(p, q, [x[a:b] for x in wide_lowers],
-                                               [x[a:b] for x in wide_uppers])
-            wide_keys = [(key, low[found], high[found]) for key, low, high in wide_keys]
+            if not grouped:
+                wide_keys = tables.keys(p, q, [x[a:b] for x in wide_lowers],
+                                        [x[a:b] for x in wide_uppers])
+            else:
+                wide_keys = [(rank[p - offset:q - offset], low[a - g0:b - g0],
+                              high[a - g0:b - g0]) for rank, low, high in wide]
+            wide_keys = [(key, low[found], high[found]) for key, low, high in keys[:1] + wide_keys]
             column_w, n_w = _similar_runs(wide_keys, n_found.size, width)
             pending.append((rows, p + column, n_found, p + column_w, n_w))
             pending_records += column_w.size
@@ -653,30 +701,40 @@ def _corrections_of_runs(usable_values, usable_drivers, slope_drivers, gaps, don
     """:func:`local_linear_correction` of `gaps` from their donors and slope records.
 
     ``usable_values`` and ``usable_drivers`` are the target and the slope drivers at the
-    usable records; ``slope_drivers`` the (driver, tolerance) pairs over all records;
-    ``donors`` and ``slopes`` positions in the usable records, each gap's one run
-    (``donor_counts``, ``slope_counts`` records per gap). Every quantity is a sum over
-    one gap's own run or an element-wise operation, so the gaps of several blocks
-    joined end to end get the bits of a call per block.
+    usable records, the drivers as rows of one array (drivers × usable records);
+    ``slope_drivers`` the (driver, tolerance) pairs over all records; ``donors`` and
+    ``slopes`` positions in the usable records, each gap's one run (``donor_counts``,
+    ``slope_counts`` records per gap). Every quantity is a sum over one gap's own run or an
+    element-wise operation, so the gaps of several blocks joined end to end get the bits
+    of a call per block.
     """
+    k = usable_drivers.shape[0]
     slope_starts = np.cumsum(slope_counts) - slope_counts
     picked = usable_values[slopes]
-    residual = picked - np.repeat(np.add.reduceat(picked, slope_starts) / slope_counts,
-                                  slope_counts)
+    # the drivers at the slope records and, in the last row, the residual: one array
+    # (_local_linear works on its rows in place)
+    rows = np.empty((k + 1, slopes.size))
+    np.take(usable_drivers, slopes, axis=1, out=rows[:k])
+    np.subtract(picked, np.repeat(np.add.reduceat(picked, slope_starts) / slope_counts,
+                                  slope_counts), out=rows[k])
     donor_starts = np.cumsum(donor_counts) - donor_counts
-    return local_linear_correction(
-        residual, [x[slopes] for x in usable_drivers],
-        [driver[gaps] for driver, _ in slope_drivers],
-        [_at(tolerance, gaps) for _, tolerance in slope_drivers],
-        slope_starts, slope_counts, [_run_means(x[donors], donor_starts) for x in usable_drivers])
+    with np.errstate(all="ignore"):
+        return _local_linear(
+            rows, [driver[gaps] for driver, _ in slope_drivers],
+            [_at(tolerance, gaps) for _, tolerance in slope_drivers], slope_starts,
+            slope_counts, _run_means(usable_drivers[:, donors], donor_starts, donor_counts))
 
 
-def _run_means(x, run_starts):
-    """Mean of each run of `x` (runs start at `run_starts`), NaN values left out."""
+def _run_means(x, run_starts, counts=None):
+    """Mean of each run of `x` along its last axis (runs start at `run_starts`; `counts`:
+    their lengths, if known), NaN values left out."""
     present = ~np.isnan(x)
     with np.errstate(invalid="ignore", divide="ignore"):
-        return (np.add.reduceat(np.where(present, x, 0.0), run_starts)
-                / np.add.reduceat(present, run_starts))
+        if counts is not None and present.all():
+            # every value present: the same sums over the same counts
+            return np.add.reduceat(x, run_starts, axis=-1) / counts
+        return (np.add.reduceat(np.where(present, x, 0.0), run_starts, axis=-1)
+                / np.add.reduceat(present, run_starts, axis=-1))
 
 
 def _similar_runs(keys, n_rows, width):
@@ -770,41 +828,49 @@ def local_linear_correction(residual, donor_drivers, gap_drivers, tolerances, ru
     Efron, B., Morris, C. (1975). Data analysis using Stein's estimator and its
     generalizations. Journal of the American Statistical Association 70, 311–319 (m).
     """
+    rows = np.empty((len(donor_drivers) + 1, np.size(residual)))
+    for row, x in zip(rows, [*donor_drivers, residual], strict=True):
+        row[:] = x
     with np.errstate(all="ignore"):
-        return _local_linear(residual, donor_drivers, gap_drivers, tolerances, run_starts,
-                             counts, reference_means)
+        return _local_linear(rows, gap_drivers, tolerances, run_starts, counts,
+                             reference_means)
 
 
-def _local_linear(residual, donor_drivers, gap_drivers, tolerances, run_starts, counts,
-                  reference_means):
-    n_gaps, k = counts.size, len(donor_drivers)
-    scaled, offset = [], np.empty((n_gaps, k))
-    for j, (x, at_gap, tolerance) in enumerate(zip(donor_drivers, gap_drivers, tolerances,
-                                                   strict=True)):
-        missing = np.isnan(x)
-        if missing.any():
-            # a regressor missing at a record (NaN) sits at its records' mean: no leverage
-            donor_mean = _run_means(x, run_starts)
-            deviation = np.where(missing, 0.0, x - np.repeat(donor_mean, counts))
-        else:
-            donor_mean = np.add.reduceat(x, run_starts) / counts
-            deviation = x - np.repeat(donor_mean, counts)
+def _local_linear(rows, gap_drivers, tolerances, run_starts, counts, reference_means):
+    """:func:`local_linear_correction` of the drivers at the slope records, rows ``0 ..
+    k - 1`` of `rows`, and their residual, its last row (overwritten: the drivers'
+    deviations in tolerance units). Each row's element-wise operations and run sums are
+    those of the row on its own (a run sum along a row of a C-ordered array has the bits
+    of the row's own), in fewer NumPy calls."""
+    n_gaps, k = counts.size, rows.shape[0] - 1
+    drivers = rows[:k]
+    offset = np.empty((n_gaps, k))
+    missing = np.isnan(drivers)
+    # a regressor missing at a record (NaN) sits at its records' mean: no leverage
+    donor_means = _run_means(drivers, run_starts, counts)
+    drivers -= np.repeat(donor_means, counts, axis=1)
+    for j, (at_gap, tolerance) in enumerate(zip(gap_drivers, tolerances, strict=True)):
+        if missing[j].any():
+            drivers[j][missing[j]] = 0.0
         if np.ndim(tolerance) == 0:
-            deviation /= float(tolerance)
+            drivers[j] /= float(tolerance)
         else:
-            deviation /= np.repeat(np.asarray(tolerance, dtype=float), counts)
-        scaled.append(deviation)
+            drivers[j] /= np.repeat(np.asarray(tolerance, dtype=float), counts)
         tolerance = np.broadcast_to(np.asarray(tolerance, dtype=float), (n_gaps,))
-        reference = donor_mean if reference_means is None else reference_means[j]
+        reference = donor_means[j] if reference_means is None else reference_means[j]
         # ... and missing at the gap (or at every donor): no offset
         relative = (at_gap - reference) / tolerance
         offset[:, j] = np.where(np.isnan(relative), 0.0, relative)
     gram = np.empty((n_gaps, k, k))
     moment = np.empty((n_gaps, k))
-    for i in range(k):
-        moment[:, i] = np.add.reduceat(scaled[i] * residual, run_starts)
-        for j in range(i, k):
-            gram[:, i, j] = gram[:, j, i] = np.add.reduceat(scaled[i] * scaled[j], run_starts)
+    for i in range(k + 1):
+        # row i times rows i .. k, summed over each run: gram row i, moment i; the last,
+        # the residual's square
+        sums = np.add.reduceat(rows[i] * rows[i:], run_starts, axis=1)
+        if i < k:
+            gram[:, i, i:] = gram[:, i:, i] = sums[:-1].T
+            moment[:, i] = sums[-1]
+    squares = sums[0]
     gram += _SLOPE_RIDGE * counts[:, None, None] * np.eye(k)
     # rows with a non-finite sum (an absurd driver value) get no slope, not a failed solve
     broken = ~(np.isfinite(gram).all(axis=(1, 2)) & np.isfinite(moment).all(axis=1)
@@ -816,7 +882,7 @@ def _local_linear(residual, donor_drivers, gap_drivers, tolerances, run_starts, 
     for j in range(k):
         correction += solved[:, j, 0] * offset[:, j]
         leverage += solved[:, j, 1] * offset[:, j]
-    variance = np.add.reduceat(residual * residual, run_starts) / counts * leverage
+    variance = squares / counts * leverage
     square = correction * correction
     total = square + variance
     kept = np.divide(correction * square, total, out=np.zeros(n_gaps),
@@ -838,11 +904,11 @@ def _solve_positive_definite(matrices, right):
     a = np.array(matrices, dtype=float)
     b = np.array(right, dtype=float)
     k = a.shape[1]
-    for i in range(k):
-        for j in range(i + 1, k):
-            factor = a[:, j, i] / a[:, i, i]
-            a[:, j, i:] -= factor[:, None] * a[:, i, i:]
-            b[:, j, :] -= factor[:, None] * b[:, i, :]
+    for i in range(k - 1):
+        # every row below i at once: each row's operations are those of its own step
+        factor = a[:, i + 1:, i] / a[:, i, i, None]
+        a[:, i + 1:, i:] -= factor[:, :, None] * a[:, i, None, i:]
+        b[:, i + 1:, :] -= factor[:, :, None] * b[:, i, None, :]
     x = np.empty_like(b)
     for i in range(k - 1, -1, -1):
         total = b[:, i, :].copy()

@@ -157,19 +157,31 @@ def light_dependence(nee, is_night, light, temperatures, index) -> pd.DataFrame:
     The effective number of spatial degrees of freedom of a time-varying field. Journal
     of Climate 12, 1990–2009 (m).
     """
-    nights = _night_means(nee, is_night, light, temperatures, index)
+    return _dependence_table(_night_means(nee, is_night, light, temperatures,
+                                          _evening_days(index)))
+
+
+def _dependence_table(nights) -> pd.DataFrame:
+    """:func:`light_dependence`'s table of the nights of :func:`_night_means`."""
     rows = {}
     for year in np.unique(nights["year"]):
         inside = nights["year"] == year
         tested = _year_test({name: values[inside] for name, values in nights.items()})
         if tested is not None:
             rows[int(year)] = tested
-    table = pd.DataFrame.from_dict(rows, orient="index",
-                                   columns=["nights", "slope", "t", "p"])
-    table.index.name = "year"
-    table["nights"] = table["nights"].astype(np.int64)
-    table["passed"] = table["p"] < TEST_LEVEL
-    return table
+    if not rows:    # no year tested: the empty frame, its dtypes, as ever
+        table = pd.DataFrame.from_dict(rows, orient="index",
+                                       columns=["nights", "slope", "t", "p"])
+        table.index.name = "year"
+        table["nights"] = table["nights"].astype(np.int64)
+        table["passed"] = table["p"] < TEST_LEVEL
+        return table
+    # one table built from its columns (a fill tests its nights on every call)
+    nights_tested, slope, t, p = (np.array(column) for column in zip(*rows.values(),
+                                                                     strict=True))
+    return pd.DataFrame({"nights": nights_tested.astype(np.int64), "slope": slope, "t": t,
+                         "p": p, "passed": p < TEST_LEVEL},
+                        index=pd.Index(np.array(list(rows), dtype=np.int64), name="year"))
 
 
 def tested_regressor(light, index, tests) -> np.ndarray:
@@ -189,20 +201,48 @@ def tested_regressor(light, index, tests) -> np.ndarray:
     numpy.ndarray
         `light` in the passed years (of the night's evening, as tested), NaN elsewhere.
     """
+    return _passed_years_only(light, _evening_days(index), tests)
+
+
+def _passed_years_only(light, evening, tests) -> np.ndarray:
+    """:func:`tested_regressor` of the records' evenings (:func:`_evening_days`)."""
     passed = tests.index[tests["passed"].to_numpy(dtype=bool)].to_numpy()
-    years = _evening_dates(index).year.to_numpy()
+    first, day = evening
+    # the year of each evening day, then of each record
+    years = _calendar_year(first + np.arange(int(day.max()) + 1 if day.size else 0))[day]
     return np.where(np.isin(years, passed), np.asarray(light, dtype=float), np.nan)
 
 
-def _evening_dates(index) -> pd.DatetimeIndex:
-    """The date of each record's night's evening (records before noon: the day before)."""
-    return (index - pd.Timedelta(hours=12)).normalize()
+def _evening_days(index) -> tuple:
+    """The first record's evening date (``datetime64[D]``) and each record's evening as a
+    day number from it (int64): the date of the record's night's evening on the stamps'
+    local clock (records before noon: the day before). NumPy day arithmetic: a fill tests
+    its nights on every call, and pandas' date fields cost ~1 ms a site-year each time."""
+    if getattr(index, "tz", None) is not None:
+        index = index.tz_localize(None)         # the local clock, as pandas' normalize
+    stamps = np.asarray(index.to_numpy(), dtype="datetime64[ns]")
+    # a datetime64 cast to days floors, so a record before noon falls on the day before
+    evening = (stamps - np.timedelta64(12, "h")).astype("datetime64[D]")
+    if not evening.size:
+        return np.datetime64("NaT", "D"), np.zeros(0, dtype=np.int64)
+    return evening[0], (evening - evening[0]).astype(np.int64)
 
 
-def _night_means(nee, is_night, light, temperatures, index) -> dict:
+def _calendar_year(dates) -> np.ndarray:
+    """The calendar year of each ``datetime64[D]`` date."""
+    return dates.astype("datetime64[Y]").astype(np.int64) + 1970
+
+
+def _day_of_year(dates) -> np.ndarray:
+    """The day of the year (1 on 1 January) of each ``datetime64[D]`` date."""
+    return (dates - dates.astype("datetime64[Y]").astype("datetime64[D]")).astype(np.int64) + 1
+
+
+def _night_means(nee, is_night, light, temperatures, evening) -> dict:
     """Per night with a measured record, in order: ``year``, ``doy`` (of its evening),
     ``nee`` and ``t0``, ``t1``, ... (the means over its measured records with every
-    driver) and ``anomaly`` (its light's anomaly from the fortnight's), as arrays."""
+    driver) and ``anomaly`` (its light's anomaly from the fortnight's), as arrays;
+    `evening`: the records' evenings (:func:`_evening_days`)."""
     nee = np.asarray(nee, dtype=float)
     light = np.asarray(light, dtype=float)
     night = np.asarray(is_night, dtype=bool)
@@ -213,26 +253,34 @@ def _night_means(nee, is_night, light, temperatures, index) -> dict:
     if not usable.any():
         return {name: np.empty(0) for name in ("year", "doy", "nee", "anomaly",
                                                *(f"t{j}" for j in range(len(drivers))))}
-    evening = _evening_dates(index)
-    day = ((evening - evening[0]).days).to_numpy()
+    first, day = evening
     # the light of a night: the mean of its night records' preceding 24 h, and the
     # fortnight's running mean of that daily series
     night_light = _daily_means(light, day, night & ~np.isnan(light))
     anomaly = night_light - _centred_mean(night_light, _ANOMALY_HALF_DAYS)
-    count = np.bincount(day[usable], minlength=night_light.size)
+    # the usable records' days and counts once for NEE and every temperature
+    usable_days = day[usable]
+    count = np.bincount(usable_days, minlength=night_light.size)
     days = np.flatnonzero(count)
     days = days[~np.isnan(anomaly[days])]
-    dates = evening[0] + pd.to_timedelta(days, unit="D")
-    return {"year": dates.year.to_numpy(), "doy": dates.day_of_year.to_numpy(),
-            "nee": _daily_means(nee, day, usable)[days], "anomaly": anomaly[days],
-            **{f"t{j}": _daily_means(t, day, usable)[days] for j, t in enumerate(drivers)}}
+    dates = first + days
+
+    def means(values):
+        return _daily_means(values, day, usable, usable_days, count)[days]
+
+    return {"year": _calendar_year(dates), "doy": _day_of_year(dates),
+            "nee": means(nee), "anomaly": anomaly[days],
+            **{f"t{j}": means(t) for j, t in enumerate(drivers)}}
 
 
-def _daily_means(values, day, usable) -> np.ndarray:
-    """Mean of `values` over the `usable` records of each day number (NaN without any)."""
+def _daily_means(values, day, usable, usable_days=None, count=None) -> np.ndarray:
+    """Mean of `values` over the `usable` records of each day number (NaN without any);
+    `usable_days` (``day[usable]``) and `count` (their records per day), where known."""
     n_days = int(day[-1]) + 1 if day.size else 0
-    total = np.bincount(day[usable], weights=values[usable], minlength=n_days)
-    count = np.bincount(day[usable], minlength=n_days)
+    if usable_days is None:
+        usable_days = day[usable]
+        count = np.bincount(usable_days, minlength=n_days)
+    total = np.bincount(usable_days, weights=values[usable], minlength=n_days)
     with np.errstate(invalid="ignore", divide="ignore"):
         return total / count
 
@@ -333,8 +381,10 @@ def gated_conditions(conditions, nee, is_night, index) -> tuple:
     temperatures = [conditions[name].to_numpy(dtype=float) for name in ("tair", "tsoil")
                     if name in conditions.columns]
     light = conditions[COLUMN].to_numpy(dtype=float)
-    tests = light_dependence(nee, is_night, light, temperatures, index)
-    regressor = tested_regressor(light, index, tests)
+    # the records' evenings once for the test and the regressor
+    evening = _evening_days(index)
+    tests = _dependence_table(_night_means(nee, is_night, light, temperatures, evening))
+    regressor = _passed_years_only(light, evening, tests)
     if np.isnan(regressor).all():
         return conditions.drop(columns=COLUMN), tests
     return conditions.assign(**{COLUMN: regressor}), tests

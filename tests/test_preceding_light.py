@@ -96,7 +96,8 @@ def test_false_calls_near_the_level_where_nights_have_no_dependence():
 def test_the_slope_is_ordinary_least_squares_of_statsmodels(rng):
     # reference: statsmodels OLS on the same night means and block columns
     index, nee, is_night, light, tair = _year(rng, 0.5)
-    nights = preceding_light._night_means(nee, is_night, light, [tair], index)
+    nights = preceding_light._night_means(nee, is_night, light, [tair],
+                                          preceding_light._evening_days(index))
     nights = {name: values[nights["year"] == 2021] for name, values in nights.items()}
     got = preceding_light._year_test(nights)
     block = np.minimum((nights["doy"] - 1) // preceding_light.BLOCK_DAYS,
@@ -189,3 +190,19 @@ def test_the_light_is_tested_only_where_the_fill_can_take_it(settings, acts):
     with_light = fill(drivers.assign(**{preceding_light.COLUMN: light}))
     if config.gapfill_night_light == "tested":
         assert np.array_equal(with_light, fill(drivers)) is not acts
+
+
+@pytest.mark.parametrize(("start", "tz", "unit"), [
+    ("2021-01-01 00:00", None, "ns"), ("2020-02-28 06:30", "Etc/GMT-1", "ns"),
+    ("1969-12-30 11:30", None, "us"), ("2023-12-31 12:00", None, "s")])
+def test_evening_days_are_those_of_pandas(start, tz, unit):
+    # reference: pandas' normalize and date fields of the stamps 12 h earlier (the local
+    # clock of a tz-aware index), across a leap day, a year's end and the 1970 epoch
+    index = pd.date_range(start, periods=3 * 48 + 7, freq="30min", tz=tz).as_unit(unit)
+    want = (index - pd.Timedelta(hours=12)).normalize()
+    first, day = preceding_light._evening_days(index)
+    dates = first + day
+    assert (dates == want.tz_localize(None).to_numpy().astype("datetime64[D]")).all()
+    assert (preceding_light._calendar_year(dates) == want.year.to_numpy()).all()
+    assert (preceding_light._day_of_year(dates) == want.day_of_year.to_numpy()).all()
+    assert (day == (want - want[0]).days.to_numpy()).all()
