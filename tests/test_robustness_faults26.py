@@ -251,7 +251,10 @@ def test_verify_locates_an_edit_in_one_of_several_input_files(tmp_path, capsys):
     assert "tower_02.csv" in text and "1 value(s) in 1 record(s) differ" in text
     stamp = (pd.Timestamp(lines[row].split(",")[0]) - pd.Timedelta("30min")).strftime(
         "%Y-%m-%d %H:%M")     # stamp_end marks the interval's end: it starts 30 min before
-    assert f"record starting {stamp} 'co2_exchange'" in text
+    written = pd.Timestamp(lines[row].split(",")[0]).strftime("%Y-%m-%d %H:%M")
+    # the record by its interval start, and the stamp the file writes for it (review46)
+    assert f"record starting {stamp}, stamped {written} in the file (the interval's end), " \
+        "'co2_exchange'" in text
     assert f"{then:.10g} then, {then + 0.5:.10g} now" in text
 
 
