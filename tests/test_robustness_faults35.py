@@ -1,0 +1,74 @@
+"""Result safety faults found by round faults35 (invented data only).
+
+Each test fails on the code before the fix it names.
+"""
+from __future__ import annotations
+
+import os
+import signal
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+from bundles import RUN_WRITING_ONE_TABLE
+
+ROOT = Path(__file__).resolve().parent.parent
+
+# One process runs `fluxpart run` (cli.main) once per signal named on its command line; each
+# write meets the signal while its staging folder is full, and a signal that a timer sends
+# again and again comes again while the staging folder is being removed. After each run the
+# script prints the signal, the exit status, whether the handler was put back and what the
+# working folder holds.
+_STOPPED_RUNS = (
+    "import os, shutil, signal, sys\n"
+    "import pandas as pd\n"
+    "import fluxpart.cli as cli, fluxpart.resultdir as resultdir\n"
+    "real_rmtree = shutil.rmtree\n"
+    "def stop_in_swap(signum, again):\n"
+    "    def rmtree_again(path, *args, **kwargs):\n"
+    "        os.kill(os.getpid(), signum)\n"
+    "        real_rmtree(path, *args, **kwargs)\n"
+    "    def swap(staging, directory):\n"
+    "        if again:\n"
+    "            shutil.rmtree = rmtree_again\n"
+    "        os.kill(os.getpid(), signum)\n"
+    "        raise AssertionError('the signal was not raised as a stop')\n"
+    "    return swap\n")
+_STOPPED_RUNS_LOOP = (
+    "for name in sys.argv[2:]:\n"
+    "    shutil.rmtree = real_rmtree\n"
+    "    signum = getattr(signal, name.strip('+'))\n"
+    "    resultdir._swap_in = stop_in_swap(signum, name.endswith('+'))\n"
+    "    code = run_once()\n"
+    "    print(name, code, signal.getsignal(signum) is signal.SIG_DFL,\n"
+    "          ' '.join(sorted(os.listdir('.'))), file=sys.stderr, flush=True)\n")
+
+
+@pytest.mark.skipif(not hasattr(signal, "SIGUSR1"), reason="POSIX signals")
+def test_scheduler_timer_and_power_signals_unwind_with_one_line_and_no_staging_left(tmp_path):
+    """A batch scheduler's warning before its time limit (SIGUSR1 or SIGUSR2: Slurm's
+    ``--signal``, Grid Engine's ``-notify``), a timer's SIGALRM (``timeout -s ALRM``) and a
+    UPS daemon's SIGPWR have the default action "Term" (signal(7) (m)): each ended `run`,
+    `report`, `verify`, `export` and `batch` with no line, a batch leaving its semaphores
+    to the system (faults35; faults26 and faults34 left SIGUSR1/SIGUSR2 so). Now each
+    unwinds as SIGTERM does: one `error:` line naming the signal, exit 128 + signal, no
+    staging folder left; a timer's repeat during the clean-up is ignored (setitimer(2):
+    an interval timer fires every interval (m)), and the handlers are put back after."""
+    names = ["SIGUSR1", "SIGUSR2", "SIGALRM+"] + (["SIGPWR"] if hasattr(signal, "SIGPWR")
+                                                    else [])
+    script = (_STOPPED_RUNS + RUN_WRITING_ONE_TABLE.replace("sys.exit(cli.main(",
+                                                            "run_once = lambda: (cli.main(")
+              + _STOPPED_RUNS_LOOP)
+    env = dict(os.environ, PYTHONPATH=str(ROOT))
+    (tmp_path / "site.toml").write_text("")
+    done = subprocess.run([sys.executable, "-c", script, str(tmp_path / "out"), *names],
+                          env=env, cwd=tmp_path, capture_output=True, text=True, timeout=120)
+    lines = done.stderr.strip().splitlines()
+    assert done.returncode == 0, done.stderr
+    assert len(lines) == 2 * len(names), lines
+    for name, said, seen in zip(names, lines[0::2], lines[1::2], strict=True):
+        signum = getattr(signal, name.strip("+"))
+        assert said.startswith(f"error: stopped by {name.strip('+')} ("), said
+        assert "never a mix" in said
+        assert seen == f"{name} {128 + signum} True site.toml", seen
