@@ -72,3 +72,24 @@ def test_scheduler_timer_and_power_signals_unwind_with_one_line_and_no_staging_l
         assert said.startswith(f"error: stopped by {name.strip('+')} ("), said
         assert "never a mix" in said
         assert seen == f"{name} {128 + signum} True site.toml", seen
+
+
+@pytest.mark.parametrize("code, said", [
+    ("ESTALE", "handle went stale"), ("EIO", "failed to deliver its bytes"),
+    ("ENOTCONN", "not connected"), ("EACCES", "readable by this user")])
+def test_a_table_the_system_will_not_read_is_given_the_fix_of_its_fault(tmp_path, code, said):
+    """A stale handle of a network share (ESTALE) reading a table in `verify` was told
+    "make it and its folder readable by this user", the fix of a refused permission only
+    (store.unreadable; the input's reader already gave no permission fix for EIO,
+    faults24). Each errno now gets its own remedy (errors.read_fault_remedy; Linux
+    errno(3) (m)); a permission keeps its fix."""
+    import errno
+
+    from fluxpart import store
+
+    table = tmp_path / "daily.parquet"
+    number = getattr(errno, code)
+    message = str(store.unreadable(table, OSError(number, os.strerror(number), str(table))))
+    assert message.startswith(f"{str(table)!r} cannot be read: {os.strerror(number)}; ")
+    assert said in message and "\n" not in message
+    assert ("readable by this user" in message) == (code == "EACCES")
