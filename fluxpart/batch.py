@@ -1142,12 +1142,39 @@ def _start_fork_server_deaf() -> None:
 
     if threading.current_thread() is not threading.main_thread():
         return
-    previous = signal.signal(signal.SIGINT, signal.SIG_IGN)
+    previous = {signum: signal.signal(signum, signal.SIG_IGN) for signum in _group_stops()}
     try:
         forkserver.ensure_running()
     finally:
-        signal.signal(signal.SIGINT, signal.default_int_handler if previous is None
-                      else previous)
+        for signum, handler in previous.items():
+            signal.signal(signum, handler if handler is not None else
+                          signal.default_int_handler if signum == signal.SIGINT else
+                          signal.SIG_DFL)
+
+
+def _group_stops() -> list:
+    """The signals that reach every process of a batch's process group and that the
+    batch process alone answers (closing the cluster, which ends the workers).
+
+    SIGINT (a terminal's Ctrl-C), SIGHUP (the terminal or SSH session closed: the
+    session's foreground group), SIGUSR1 and SIGUSR2 (a batch scheduler's warning before
+    its time limit, sent to every process of the job: Slurm's ``--signal``) and SIGPWR.
+    Their default action ended the fork server, Python's resource tracker and the workers
+    outright: a closed SSH session or a scheduler's warning printed 51 lines (the
+    tracker's "process died unexpectedly, relaunching" warnings and the workers'
+    tracebacks) before the batch's one line (faults35). SIGTERM is not among them: the
+    resource tracker ignores it already, and a cluster that closes its workers ends one
+    that does not answer with it.
+
+    References
+    ----------
+    POSIX, General Terminal Interface: INTR and a hang-up are sent to the foreground
+    process group; Slurm ``sbatch --signal`` (sent to every task of the job) (m).
+    """
+    import signal
+
+    names = ("SIGINT", "SIGHUP", "SIGUSR1", "SIGUSR2", "SIGPWR")
+    return [getattr(signal, name) for name in names if hasattr(signal, name)]
 
 
 def _leave_unstarted_clusters(earlier=()) -> None:
@@ -1213,7 +1240,8 @@ def dask_setup(worker) -> None:
     import signal
 
     try:
-        signal.signal(signal.SIGINT, signal.SIG_IGN)
+        for signum in _group_stops():     # the batch process answers them for the group
+            signal.signal(signum, signal.SIG_IGN)
     except ValueError:         # not the main thread of its process: nothing to protect
         pass
     # the fingerprint of the code this worker loaded, taken as it starts (about 4 ms): the
