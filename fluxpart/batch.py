@@ -1371,6 +1371,42 @@ def _client(scheduler, workers, sites: int | None = None):
         raise
 
 
+def _close_client(client, cluster, client_log, level) -> None:
+    """Close the client and the local cluster (None on an existing scheduler), then put
+    the client log's level back."""
+    try:
+        client.close()
+        if cluster is not None:
+            cluster.close()
+    finally:
+        client_log.setLevel(level)
+
+
+def _tidy_stopped_sites(out: Path, sites) -> list[str]:
+    """Remove what the local workers of a stopped batch left beside its site folders.
+
+    A worker ended while it wrote a site (SIGTERM to the whole job, as a scheduler's
+    time limit sends it; ``kill -9``) leaves the site's ``.KEY.staging-*`` folder, a
+    whole copy of a result, until a later batch or run of that site removes it; every
+    ``verify`` of the site said meanwhile that a run into it "is running now or was
+    stopped" (faults35: SIGTERM to every process of a 4-site batch left one). Called
+    once the local cluster is closed; a site whose lock a writer still holds is left
+    to it (:func:`tidy_skipped`).
+
+    Returns
+    -------
+    list of str
+        What was removed.
+    """
+    removed = []
+    for key, _config in sites:
+        try:
+            removed += tidy_skipped(out / key)
+        except Exception:         # the batch's own stop is what the user is told about
+            continue
+    return removed
+
+
 def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False,
               progress=None, site_time_limit=None) -> BatchReport:
     """Process every site of a network file on Dask and write the network tables.
@@ -1448,13 +1484,14 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     client_log.setLevel(logging.CRITICAL)
     try:
         outcomes = _run_tasks(client, network.sites, out, force, progress, limit * 60.0)
-    finally:
-        try:
-            client.close()
-            if cluster is not None:
-                cluster.close()
-        finally:
-            client_log.setLevel(level)
+    except BaseException:
+        # stopped (SIGTERM, Ctrl-C, a scheduler's signal): the local workers end with the
+        # cluster, and what one left beside the site it was writing is removed here
+        _close_client(client, cluster, client_log, level)
+        if cluster is not None:
+            _tidy_stopped_sites(out, network.sites)
+        raise
+    _close_client(client, cluster, client_log, level)
     outcomes = [settled_outcome(outcome) for outcome in outcomes]
     try:
         table, failures = _write_network(outcomes, out)

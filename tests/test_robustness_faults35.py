@@ -93,3 +93,49 @@ def test_a_table_the_system_will_not_read_is_given_the_fix_of_its_fault(tmp_path
     assert message.startswith(f"{str(table)!r} cannot be read: {os.strerror(number)}; ")
     assert said in message and "\n" not in message
     assert ("readable by this user" in message) == (code == "EACCES")
+
+
+def test_a_stopped_batch_removes_what_its_local_workers_left_beside_the_sites(
+        tmp_path, monkeypatch):
+    """SIGTERM to every process of a batch job (a scheduler's time limit) ended a local
+    worker while it wrote a site: its ``.KEY.staging-*`` folder, a whole copy of a result,
+    stayed beside the site until a later batch or run of it (faults35; every `verify` of
+    the site meanwhile said a run into it "is running now or was stopped"). Once the
+    stopped batch has closed its local cluster it removes such folders of its sites,
+    under each site's lock (batch._tidy_stopped_sites); a site whose lock a writer still
+    holds keeps its own."""
+    from bundles import make_bundle
+
+    from fluxpart import batch, resultdir
+
+    config = make_bundle(tmp_path / "towers", name="fen.toml")
+    (tmp_path / "sites.toml").write_text('[batch]\nsites = ["towers/fen.toml"]\n'
+                                         'out = "net"\n')
+    closed = []
+
+    class Closing:
+        def close(self):
+            closed.append(self)
+
+    def stopped(client, sites, out, *args):
+        [(key, _)] = sites
+        staging = resultdir.make_staging(out / key)
+        (staging / "annual.parquet").write_bytes(b"a worker's table")
+        resultdir.make_staging(out / "busy")       # a writer's, who holds its lock
+        held.append(resultdir.folder_lock(out / "busy", timeout=0))
+        held[0].__enter__()
+        raise KeyboardInterrupt
+
+    held = []
+    monkeypatch.setattr(batch, "_client", lambda *args: (Closing(), Closing()))
+    monkeypatch.setattr(batch, "_run_tasks", stopped)
+    with pytest.raises(KeyboardInterrupt):
+        batch.run_batch(tmp_path / "sites.toml")
+    out = tmp_path / "net"
+    assert len(closed) == 2
+    left = sorted(p.name for p in out.iterdir() if "staging" in p.name)
+    assert len(left) == 1 and left[0].startswith(".busy.staging-"), left
+    # a folder whose writer still holds its lock is not touched, one whose writer ended is
+    assert batch._tidy_stopped_sites(out, [("busy", config)]) == []
+    held[0].__exit__(None, None, None)
+    assert batch._tidy_stopped_sites(out, [("busy", config)]) == [f"removed {left[0]}"]
