@@ -139,3 +139,28 @@ def test_a_stopped_batch_removes_what_its_local_workers_left_beside_the_sites(
     assert batch._tidy_stopped_sites(out, [("busy", config)]) == []
     held[0].__exit__(None, None, None)
     assert batch._tidy_stopped_sites(out, [("busy", config)]) == [f"removed {left[0]}"]
+
+
+def test_a_result_moved_while_its_report_is_written_is_named_moved(copy, monkeypatch):
+    """A result folder moved (``mv``) while `report` wrote its page into it: the swap of
+    the report's staging folder found no folder at the old path, and the line said "the
+    report folder ... cannot be written (No such file or directory) ...: give --out a
+    writable folder" (faults35), a fault that was not there. The line now says the result
+    was moved while its report was drawn, as it did for a move before the write."""
+    from fluxpart import report
+    from fluxpart.errors import InputFileError
+
+    directory, moved = copy / "out", copy / "out moved"
+    real_write = report.atomic_write_bytes
+
+    def write_then_moved(path, data):
+        real_write(path, data)
+        if path.name == "report.html":
+            directory.rename(moved)
+
+    monkeypatch.setattr(report, "draw_figures", lambda written, tick: [])
+    monkeypatch.setattr(report, "atomic_write_bytes", write_then_moved)
+    with pytest.raises(InputFileError, match="was moved, renamed, removed or replaced while "
+                                             "its report was drawn"):
+        report.build_report(directory)
+    assert not directory.exists() and not (moved / "report").exists()
