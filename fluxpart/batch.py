@@ -1487,9 +1487,11 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     except BaseException:
         # stopped (SIGTERM, Ctrl-C, a scheduler's signal): the local workers end with the
         # cluster, and what one left beside the site it was writing is removed here
-        _close_client(client, cluster, client_log, level)
-        if cluster is not None:
-            _tidy_stopped_sites(out, network.sites)
+        try:
+            _close_client(client, cluster, client_log, level)
+        finally:
+            if cluster is not None:
+                _tidy_stopped_sites(out, network.sites)
         raise
     _close_client(client, cluster, client_log, level)
     outcomes = [settled_outcome(outcome) for outcome in outcomes]
