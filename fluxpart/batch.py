@@ -691,13 +691,15 @@ def _checked_site(key: str, config, directory, *, force: bool = False,
     return run_site(key, config, directory, force=force)
 
 
-def tidy_skipped(directory) -> list[str]:
+def tidy_skipped(directory, wait: float = 0.0) -> list[str]:
     """Remove what a killed writer left beside a site folder that is up to date.
 
     Parameters
     ----------
     directory : str or path-like
         The site's result folder, found up to date (:func:`is_up_to_date`).
+    wait : float, optional
+        Seconds to wait for a writer holding the folder's lock (default 0: none).
 
     Returns
     -------
@@ -725,7 +727,7 @@ def tidy_skipped(directory) -> list[str]:
     if not interrupted_writes(directory):
         return []
     try:
-        with folder_lock(directory, timeout=0, remove=True):
+        with folder_lock(directory, timeout=wait, notify=lambda text: None, remove=True):
             return clean_leftovers(directory)
     except (OutputError, OSError):
         return []                # held by a writer running now, or not ours to remove
@@ -1382,6 +1384,13 @@ def _close_client(client, cluster, client_log, level) -> None:
         client_log.setLevel(level)
 
 
+#: Seconds, in all, that a stopped batch waits for the locks of sites its ending local
+#: workers still hold (a worker process killed as the cluster closes ends within a
+#: fraction of a second here; a scheduler's grace before SIGKILL is commonly 30 s, Slurm
+#: ``KillWait`` (m)).
+_ENDING_WORKER_WAIT = 5.0
+
+
 def _tidy_stopped_sites(out: Path, sites) -> list[str]:
     """Remove what the local workers of a stopped batch left beside its site folders.
 
@@ -1390,18 +1399,20 @@ def _tidy_stopped_sites(out: Path, sites) -> list[str]:
     whole copy of a result, until a later batch or run of that site removes it; every
     ``verify`` of the site said meanwhile that a run into it "is running now or was
     stopped" (faults35: SIGTERM to every process of a 4-site batch left one). Called
-    once the local cluster is closed; a site whose lock a writer still holds is left
-    to it (:func:`tidy_skipped`).
+    once the local cluster is closed. A worker killed by the same signal may still be
+    ending then, its lock not yet released with its process (flock(2) (m)): the sites
+    wait for their locks up to :data:`_ENDING_WORKER_WAIT` seconds in all; a site whose
+    lock a writer holds longer is left to it (:func:`tidy_skipped`).
 
     Returns
     -------
     list of str
         What was removed.
     """
-    removed = []
+    removed, deadline = [], time.monotonic() + _ENDING_WORKER_WAIT
     for key, _config in sites:
         try:
-            removed += tidy_skipped(out / key)
+            removed += tidy_skipped(out / key, wait=max(0.0, deadline - time.monotonic()))
         except Exception:         # the batch's own stop is what the user is told about
             continue
     return removed

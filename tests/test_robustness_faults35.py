@@ -102,8 +102,8 @@ def test_a_stopped_batch_removes_what_its_local_workers_left_beside_the_sites(
     stayed beside the site until a later batch or run of it (faults35; every `verify` of
     the site meanwhile said a run into it "is running now or was stopped"). Once the
     stopped batch has closed its local cluster it removes such folders of its sites,
-    under each site's lock (batch._tidy_stopped_sites); a site whose lock a writer still
-    holds keeps its own."""
+    under each site's lock, waiting a few seconds for workers still ending
+    (batch._tidy_stopped_sites); a site whose lock a writer holds longer keeps its own."""
     from bundles import make_bundle
 
     from fluxpart import batch, resultdir
@@ -135,7 +135,9 @@ def test_a_stopped_batch_removes_what_its_local_workers_left_beside_the_sites(
     assert len(closed) == 2
     left = sorted(p.name for p in out.iterdir() if "staging" in p.name)
     assert len(left) == 1 and left[0].startswith(".busy.staging-"), left
-    # a folder whose writer still holds its lock is not touched, one whose writer ended is
+    # a folder whose writer still holds its lock past the wait is not touched, one whose
+    # writer ended is
+    monkeypatch.setattr(batch, "_ENDING_WORKER_WAIT", 0.2)
     assert batch._tidy_stopped_sites(out, [("busy", config)]) == []
     held[0].__exit__(None, None, None)
     assert batch._tidy_stopped_sites(out, [("busy", config)]) == [f"removed {left[0]}"]
