@@ -150,18 +150,16 @@ def f_signals():
 
 # ------------------------------------------------------------------ an auditor's copies
 def f_table_of_other_run():
-    folder = fresh("t_other")
-    shutil.copy2(W / "r1" / "annual.parquet", folder / "annual.parquet")
-    done = verify(folder)
-    record("a table replaced by the same table of another run (valid Parquet, same schema)",
-           done.returncode == 1 and "annual.parquet" in done.stdout,
-           f"exit {done.returncode}; {done.stdout.splitlines()[:1]}")
-    folder = fresh("t_kind")
-    shutil.copy2(W / "r0" / "monthly.parquet", folder / "daily.parquet")
-    done = verify(folder)
-    record("a table replaced by another table of the same run (monthly as daily)",
-           done.returncode == 1 and "daily.parquet" in done.stdout,
-           f"exit {done.returncode}; {done.stdout.splitlines()[:1]}")
+    cases = (("t_other", "r1", "annual", "annual",
+              "a table replaced by the same table of another run (valid Parquet, same schema)"),
+             ("t_kind", "r0", "monthly", "daily",
+              "a table replaced by another table of the same run (monthly as daily)"))
+    for name, source, table, target, label in cases:
+        folder = fresh(name)
+        shutil.copy2(W / source / f"{table}.parquet", folder / f"{target}.parquet")
+        done = verify(folder)
+        record(label, done.returncode == 1 and f"{target}.parquet" in done.stdout,
+               f"exit {done.returncode}; {done.stdout.splitlines()[:1]}")
 
 
 def f_manifest_of_other_run():
