@@ -642,8 +642,8 @@ def _posix_signal(name: str):
 #: (``timeout -s ALRM``, an interval timer) and a UPS daemon's power failure. SIGQUIT
 #: (a user asking for a core dump), SIGINT (KeyboardInterrupt) and the signals of a
 #: program's own faults (SIGSEGV, SIGABRT, ...) are not among them.
-_STOP_NAMES = {signal.SIGTERM: "terminated (SIGTERM)"}
-for _name, _said in (
+_STOP_NAMES = {signal.SIGTERM: "terminated (SIGTERM)"} | {
+    _posix_signal(name): said for name, said in (
         ("SIGHUP", "hung up (SIGHUP: the terminal or session closed)"),
         ("SIGXCPU", "out of CPU time (SIGXCPU: the process's CPU-time limit, ulimit -t or a "
                     "batch job's, was reached)"),
@@ -654,14 +654,13 @@ for _name, _said in (
         ("SIGALRM", "stopped by SIGALRM (a timer's alarm: timeout -s ALRM, an interval timer)"),
         ("SIGVTALRM", "stopped by SIGVTALRM (a virtual-time timer ran out)"),
         ("SIGPROF", "stopped by SIGPROF (a profiling timer ran out)"),
-        ("SIGPWR", "stopped by SIGPWR (a power failure announced by a UPS daemon)")):
-    if _posix_signal(_name) is not None:
-        _STOP_NAMES[_posix_signal(_name)] = _said
+        ("SIGPWR", "stopped by SIGPWR (a power failure announced by a UPS daemon)"))
+    if _posix_signal(name) is not None}
 
 #: Stop signals a timer or a limit sends again and again (SIGXCPU every CPU second past
 #: the soft limit until the hard limit's SIGKILL, setrlimit(2) RLIMIT_CPU (m); an
-#: interval timer's at every interval, setitimer(2) (m)): the first one sets them ignored, so
-#: that a repeat cannot cut the removal of a staging folder short.
+#: interval timer's at every interval, setitimer(2) (m)): the first one sets them
+#: ignored, so that a repeat cannot cut the removal of a staging folder short.
 _REPEATING = {signum for signum in map(_posix_signal, ("SIGXCPU", "SIGALRM", "SIGVTALRM",
                                                         "SIGPROF")) if signum is not None}
 
