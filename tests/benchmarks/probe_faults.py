@@ -106,14 +106,6 @@ def fresh(name, source="r0"):
     return target
 
 
-def stop_during(args, signum, after, env=None):
-    proc = start(*args, env=env)
-    time.sleep(after)
-    proc.send_signal(signum)
-    out, err = proc.communicate(timeout=120)
-    return subprocess.CompletedProcess(args, proc.returncode, out, err)
-
-
 def setup():
     W.mkdir(parents=True, exist_ok=True)
     sys.path.insert(0, str(TREE / "tests"))
@@ -126,20 +118,49 @@ def setup():
 
 
 # ------------------------------------------------------------------ signals of schedulers
+def stop_when(args, signum, appeared, env=None):
+    """Run `args`; send `signum` the moment ``appeared()`` is true (the command has begun
+    to write), or never where the command ends first."""
+    proc = start(*args, env=env)
+    deadline = time.time() + 120
+    while proc.poll() is None and time.time() < deadline and not appeared():
+        time.sleep(0.005)
+    if proc.poll() is None:
+        proc.send_signal(signum)
+    out, err = proc.communicate(timeout=120)
+    return subprocess.CompletedProcess(args, proc.returncode, out, err)
+
+
+def _entries(folder, prefix=""):
+    try:
+        return [p for p in Path(folder).iterdir() if p.name.startswith(prefix)]
+    except OSError:
+        return []
+
+
 def f_signals():
     """SIGUSR1/SIGUSR2 (a scheduler's warning: Slurm --signal, Grid Engine -notify),
-    SIGALRM (`timeout -s ALRM`), SIGPWR (a UPS daemon's power-fail) during each writer."""
-    cases = [("run", signal.SIGUSR1, ["run", "site.toml", "--out", W / "s_run", "--quiet"], 1.6),
-             ("report", signal.SIGUSR2, ["report", "--quiet", W / "s_rep"], 1.6),
-             ("verify", signal.SIGALRM, ["verify", "--quiet", W / "s_ver"], 2.0),
+    SIGALRM (`timeout -s ALRM`), SIGPWR (a UPS daemon's power-fail) during each command,
+    sent as it begins to write (its staging folder, scratch folder or temporary file)."""
+    scratch = W / "tmp_verify"
+    cases = [("run", signal.SIGUSR1, ["run", "site.toml", "--out", W / "s_run", "--quiet"],
+              lambda: _entries(W, ".s_run.staging-")),
+             ("report", signal.SIGUSR2, ["report", "--quiet", W / "s_rep"],
+              lambda: _entries(W / "s_rep", ".report.staging-")),
+             ("verify", signal.SIGALRM, ["verify", "--quiet", W / "s_ver"],
+              lambda: _entries(scratch)),
              ("export", getattr(signal, "SIGPWR", signal.SIGUSR1),
-              ["export", "--csv", W / "s_csv", W / "s_exp"], 1.4)]
-    for command, signum, args, after in cases:
+              ["export", "--csv", W / "s_csv", W / "s_exp"], lambda: _entries(W, ".s_csv"))]
+    for command, signum, args, appeared in cases:
         for name in ("s_run", "s_rep", "s_ver", "s_exp"):
             fresh(name)
         shutil.rmtree(W / "s_csv", ignore_errors=True)
-        done = stop_during(args, signum, after)
-        left = leftovers(W) + leftovers(W / "s_rep")
+        shutil.rmtree(scratch, ignore_errors=True)
+        scratch.mkdir()
+        for stale in leftovers(W):              # an earlier case's (before a fix)
+            shutil.rmtree(W / stale, ignore_errors=True)
+        done = stop_when(args, signum, appeared, env=dict(ENV, TMPDIR=str(scratch)))
+        left = leftovers(W) + leftovers(W / "s_rep") + [p.name for p in _entries(scratch)]
         good = verify(W / ("s_" + command[:3]) if command != "export" else W / "s_exp")
         held = (one_line(done, 128 + signum) and not left and good.returncode == 0
                 and not (W / "s_csv").exists())
@@ -211,22 +232,28 @@ def f_symlinked_result():
 
 # ------------------------------------------------------------------ kills of readers
 def f_kill_verify():
-    folder = fresh("kv")
-    done = stop_during(["verify", "--quiet", folder], signal.SIGKILL, 1.5)
-    again = verify(folder)
+    folder, scratch = fresh("kv"), W / "tmp_kill"
+    shutil.rmtree(scratch, ignore_errors=True)
+    scratch.mkdir()
+    env = dict(ENV, TMPDIR=str(scratch))
+    done = stop_when(["verify", "--quiet", folder], signal.SIGKILL, lambda: _entries(scratch),
+                     env=env)
+    again = verify(folder, env=env)
     record("kill -9 during verify, then verify again", done.returncode == -9
-           and again.returncode == 0 and not leftovers(W) and "leftover" not in again.stdout,
-           f"exit {done.returncode}, verify after {again.returncode}")
+           and again.returncode == 0 and not _entries(scratch),
+           f"exit {done.returncode}, verify after {again.returncode}, scratch left "
+           f"{[p.name for p in _entries(scratch)]}")
 
 
 def f_kill_report():
     folder = fresh("kr")
     fp("report", "--quiet", folder)
-    done = stop_during(["report", "--quiet", folder], signal.SIGKILL, 1.7)
+    done = stop_when(["report", "--quiet", folder], signal.SIGKILL,
+                     lambda: _entries(folder, ".report.staging-"))
     after = verify(folder)
     again = fp("report", "--quiet", folder)
-    record("kill -9 during report, then verify and report", after.returncode == 0
-           and again.returncode == 0 and not leftovers(folder),
+    record("kill -9 during report, then verify and report", done.returncode == -9
+           and after.returncode == 0 and again.returncode == 0 and not leftovers(folder),
            f"exit {done.returncode}, verify {after.returncode}, report {again.returncode}, "
            f"left {leftovers(folder)}")
 
@@ -437,7 +464,8 @@ def f_batch_stopped():
                and not left and all(c == 0 for c in codes) and rerun.returncode == 0
                and sites_verify(NET / "out") == [0] * 4,
                f"exit {proc.returncode}, stderr {err.strip()[-150:]!r}, {len(codes)} sites "
-               f"written, orphans {orphans}, left {left}, rerun {rerun.returncode}")
+               f"written, orphans {orphans}, left {left}, rerun {rerun.returncode} "
+               f"{[x for x in rerun.stderr.splitlines() if x.startswith('error')][:2]}")
 
 
 def f_batch_group_signal():
