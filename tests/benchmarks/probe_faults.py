@@ -95,8 +95,9 @@ def record(name, held, seen):
 
 
 def leftovers(parent):
+    """A writer's staging, retired and temporary entries in `parent`."""
     return sorted(p.name for p in Path(parent).iterdir() if ".staging-" in p.name
-                  or ".retired-" in p.name)
+                  or ".retired-" in p.name or (p.name.startswith(".") and p.name.endswith(".tmp")))
 
 
 def fresh(name, source="r0"):
@@ -148,7 +149,7 @@ def f_signals():
              ("report", signal.SIGUSR2, ["report", "--quiet", W / "s_rep"],
               lambda: _entries(W / "s_rep", ".report.staging-")),
              ("verify", signal.SIGALRM, ["verify", "--quiet", W / "s_ver"],
-              lambda: _entries(scratch)),
+              lambda: _entries(scratch, "fluxpart-verify-")),
              ("export", getattr(signal, "SIGPWR", signal.SIGUSR1),
               ["export", "--csv", W / "s_csv", W / "s_exp"], lambda: _entries(W, ".s_csv"))]
     for command, signum, args, appeared in cases:
@@ -236,7 +237,8 @@ def f_kill_verify():
     shutil.rmtree(scratch, ignore_errors=True)
     scratch.mkdir()
     env = dict(ENV, TMPDIR=str(scratch))
-    done = stop_when(["verify", "--quiet", folder], signal.SIGKILL, lambda: _entries(scratch),
+    done = stop_when(["verify", "--quiet", folder], signal.SIGKILL,
+                     lambda: _entries(scratch, "fluxpart-verify-"),
                      env=env)
     again = verify(folder, env=env)
     record("kill -9 during verify, then verify again", done.returncode == -9
