@@ -168,6 +168,9 @@ def f_signals():
         record(f"{signal.Signals(signum).name} during {command}", held,
                f"exit {done.returncode}, stderr {done.stderr.strip()[-160:]!r}, left {left}, "
                f"verify after {good.returncode}")
+    for stale in leftovers(W):                  # not to be counted against later faults
+        shutil.rmtree(W / stale, ignore_errors=True) if (W / stale).is_dir() else \
+            (W / stale).unlink()
 
 
 # ------------------------------------------------------------------ an auditor's copies
