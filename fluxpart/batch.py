@@ -691,13 +691,15 @@ def _checked_site(key: str, config, directory, *, force: bool = False,
     return run_site(key, config, directory, force=force)
 
 
-def tidy_skipped(directory) -> list[str]:
+def tidy_skipped(directory, wait: float = 0.0) -> list[str]:
     """Remove what a killed writer left beside a site folder that is up to date.
 
     Parameters
     ----------
     directory : str or path-like
         The site's result folder, found up to date (:func:`is_up_to_date`).
+    wait : float, optional
+        Seconds to wait for a writer holding the folder's lock (default 0: none).
 
     Returns
     -------
@@ -725,7 +727,7 @@ def tidy_skipped(directory) -> list[str]:
     if not interrupted_writes(directory):
         return []
     try:
-        with folder_lock(directory, timeout=0, remove=True):
+        with folder_lock(directory, timeout=wait, notify=lambda text: None, remove=True):
             return clean_leftovers(directory)
     except (OutputError, OSError):
         return []                # held by a writer running now, or not ours to remove
@@ -1142,12 +1144,39 @@ def _start_fork_server_deaf() -> None:
 
     if threading.current_thread() is not threading.main_thread():
         return
-    previous = signal.signal(signal.SIGINT, signal.SIG_IGN)
+    previous = {signum: signal.signal(signum, signal.SIG_IGN) for signum in _group_stops()}
     try:
         forkserver.ensure_running()
     finally:
-        signal.signal(signal.SIGINT, signal.default_int_handler if previous is None
-                      else previous)
+        for signum, handler in previous.items():
+            signal.signal(signum, handler if handler is not None else
+                          signal.default_int_handler if signum == signal.SIGINT else
+                          signal.SIG_DFL)
+
+
+def _group_stops() -> list:
+    """The signals that reach every process of a batch's process group and that the
+    batch process alone answers (closing the cluster, which ends the workers).
+
+    SIGINT (a terminal's Ctrl-C), SIGHUP (the terminal or SSH session closed: the
+    session's foreground group), SIGUSR1 and SIGUSR2 (a batch scheduler's warning before
+    its time limit, sent to every process of the job: Slurm's ``--signal``) and SIGPWR.
+    Their default action ended the fork server, Python's resource tracker and the workers
+    outright: a closed SSH session or a scheduler's warning printed 51 lines (the
+    tracker's "process died unexpectedly, relaunching" warnings and the workers'
+    tracebacks) before the batch's one line (faults35). SIGTERM is not among them: the
+    resource tracker ignores it already, and a cluster that closes its workers ends one
+    that does not answer with it.
+
+    References
+    ----------
+    POSIX, General Terminal Interface: INTR and a hang-up are sent to the foreground
+    process group; Slurm ``sbatch --signal`` (sent to every task of the job) (m).
+    """
+    import signal
+
+    names = ("SIGINT", "SIGHUP", "SIGUSR1", "SIGUSR2", "SIGPWR")
+    return [getattr(signal, name) for name in names if hasattr(signal, name)]
 
 
 def _leave_unstarted_clusters(earlier=()) -> None:
@@ -1213,7 +1242,8 @@ def dask_setup(worker) -> None:
     import signal
 
     try:
-        signal.signal(signal.SIGINT, signal.SIG_IGN)
+        for signum in _group_stops():     # the batch process answers them for the group
+            signal.signal(signum, signal.SIG_IGN)
     except ValueError:         # not the main thread of its process: nothing to protect
         pass
     # the fingerprint of the code this worker loaded, taken as it starts (about 4 ms): the
@@ -1345,6 +1375,51 @@ def _client(scheduler, workers, sites: int | None = None):
         raise
 
 
+def _close_client(client, cluster, client_log, level) -> None:
+    """Close the client and the local cluster (None on an existing scheduler), then put
+    the client log's level back."""
+    try:
+        client.close()
+        if cluster is not None:
+            cluster.close()
+    finally:
+        client_log.setLevel(level)
+
+
+#: Seconds, in all, that a stopped batch waits for the locks of sites its ending local
+#: workers still hold (a worker process killed as the cluster closes ends within a
+#: fraction of a second here; a scheduler's grace before SIGKILL is commonly 30 s, Slurm
+#: ``KillWait`` (m)).
+_ENDING_WORKER_WAIT = 5.0
+
+
+def _tidy_stopped_sites(out: Path, sites) -> list[str]:
+    """Remove what the local workers of a stopped batch left beside its site folders.
+
+    A worker ended while it wrote a site (SIGTERM to the whole job, as a scheduler's
+    time limit sends it; ``kill -9``) leaves the site's ``.KEY.staging-*`` folder, a
+    whole copy of a result, until a later batch or run of that site removes it; every
+    ``verify`` of the site said meanwhile that a run into it "is running now or was
+    stopped" (faults35: SIGTERM to every process of a 4-site batch left one). Called
+    once the local cluster is closed. A worker killed by the same signal may still be
+    ending then, its lock not yet released with its process (flock(2) (m)): the sites
+    wait for their locks up to :data:`_ENDING_WORKER_WAIT` seconds in all; a site whose
+    lock a writer holds longer is left to it (:func:`tidy_skipped`).
+
+    Returns
+    -------
+    list of str
+        What was removed.
+    """
+    removed, deadline = [], time.monotonic() + _ENDING_WORKER_WAIT
+    for key, _config in sites:
+        try:
+            removed += tidy_skipped(out / key, wait=max(0.0, deadline - time.monotonic()))
+        except Exception:         # the batch's own stop is what the user is told about
+            continue
+    return removed
+
+
 def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False,
               progress=None, site_time_limit=None) -> BatchReport:
     """Process every site of a network file on Dask and write the network tables.
@@ -1422,13 +1497,16 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     client_log.setLevel(logging.CRITICAL)
     try:
         outcomes = _run_tasks(client, network.sites, out, force, progress, limit * 60.0)
-    finally:
+    except BaseException:
+        # stopped (SIGTERM, Ctrl-C, a scheduler's signal): the local workers end with the
+        # cluster, and what one left beside the site it was writing is removed here
         try:
-            client.close()
-            if cluster is not None:
-                cluster.close()
+            _close_client(client, cluster, client_log, level)
         finally:
-            client_log.setLevel(level)
+            if cluster is not None:
+                _tidy_stopped_sites(out, network.sites)
+        raise
+    _close_client(client, cluster, client_log, level)
     outcomes = [settled_outcome(outcome) for outcome in outcomes]
     try:
         table, failures = _write_network(outcomes, out)

@@ -617,8 +617,9 @@ _AFTER_STOP = {
 
 
 class _Terminated(BaseException):
-    """SIGTERM (``kill``, a batch scheduler's time limit) or SIGHUP (the terminal or the
-    SSH session closed) raised in the running command.
+    """SIGTERM (``kill``, a batch scheduler's time limit), SIGHUP (the terminal or the
+    SSH session closed) or another stop signal of :data:`_STOP_NAMES` raised in the
+    running command.
 
     A BaseException like KeyboardInterrupt, so that it unwinds the same way: a result
     folder being staged is removed (:func:`fluxpart.resultdir.write_folder`) instead of
@@ -631,25 +632,46 @@ class _Terminated(BaseException):
         self.signum = signum
 
 
-#: The CPU-time limit's signal (POSIX; None elsewhere): sent again every CPU second past
-#: the soft limit until the hard limit's SIGKILL (setrlimit(2), RLIMIT_CPU (m)).
-_CPU_LIMIT = getattr(signal, "SIGXCPU", None)
+def _posix_signal(name: str):
+    """The signal called `name` where this system has it, else None."""
+    return getattr(signal, name, None)
+
+
+#: How the stop message names each signal handled as :class:`_Terminated`: SIGTERM, and
+#: the signals whose default action ends the process outright (signal(7): "Term" or, for
+#: SIGXCPU, "Core" (m)) that something other than a fault of the program sends: a closed
+#: terminal, a CPU-time limit, a batch scheduler's warning before its time limit (Slurm's
+#: ``--signal``, Grid Engine's ``-notify``, a job script's ``kill -USR1``), a timer
+#: (``timeout -s ALRM``, an interval timer) and a UPS daemon's power failure. SIGQUIT
+#: (a user asking for a core dump), SIGINT (KeyboardInterrupt) and the signals of a
+#: program's own faults (SIGSEGV, SIGABRT, ...) are not among them.
+_STOP_NAMES = {signal.SIGTERM: "terminated (SIGTERM)"} | {
+    _posix_signal(name): said for name, said in (
+        ("SIGHUP", "hung up (SIGHUP: the terminal or session closed)"),
+        ("SIGXCPU", "out of CPU time (SIGXCPU: the process's CPU-time limit, ulimit -t or a "
+                    "batch job's, was reached)"),
+        ("SIGUSR1", "stopped by SIGUSR1 (a batch scheduler's warning before its time limit, "
+                    "or a kill -USR1)"),
+        ("SIGUSR2", "stopped by SIGUSR2 (a batch scheduler's warning before its time limit, "
+                    "or a kill -USR2)"),
+        ("SIGALRM", "stopped by SIGALRM (a timer's alarm: timeout -s ALRM, an interval timer)"),
+        ("SIGVTALRM", "stopped by SIGVTALRM (a virtual-time timer ran out)"),
+        ("SIGPROF", "stopped by SIGPROF (a profiling timer ran out)"),
+        ("SIGPWR", "stopped by SIGPWR (a power failure announced by a UPS daemon)"))
+    if _posix_signal(name) is not None}
+
+#: Stop signals a timer or a limit sends again and again (SIGXCPU every CPU second past
+#: the soft limit until the hard limit's SIGKILL, setrlimit(2) RLIMIT_CPU (m); an
+#: interval timer's at every interval, setitimer(2) (m)): the first one sets them
+#: ignored, so that a repeat cannot cut the removal of a staging folder short.
+_REPEATING = {signum for signum in map(_posix_signal, ("SIGXCPU", "SIGALRM", "SIGVTALRM",
+                                                        "SIGPROF")) if signum is not None}
 
 
 def _raise_terminated(signum, frame):
-    if signum == _CPU_LIMIT:
-        # the repeats would interrupt the unwinding (the removal of a staging folder)
+    if signum in _REPEATING:
         signal.signal(signum, signal.SIG_IGN)
     raise _Terminated(signum)
-
-
-#: How the stop message names each signal handled as :class:`_Terminated`.
-_STOP_NAMES = {signal.SIGTERM: "terminated (SIGTERM)"}
-if hasattr(signal, "SIGHUP"):          # POSIX only
-    _STOP_NAMES[signal.SIGHUP] = "hung up (SIGHUP: the terminal or session closed)"
-if _CPU_LIMIT is not None:
-    _STOP_NAMES[_CPU_LIMIT] = ("out of CPU time (SIGXCPU: the process's CPU-time limit, "
-                               "ulimit -t or a batch job's, was reached)")
 
 
 def _open_file_limit() -> str:
@@ -663,20 +685,23 @@ def _open_file_limit() -> str:
 
 
 def _install_stop_handlers() -> dict:
-    """Handle SIGTERM, and SIGHUP and SIGXCPU where they have their default action, as
-    :class:`_Terminated`.
+    """Handle SIGTERM, and the other signals of :data:`_STOP_NAMES` where they have their
+    default action, as :class:`_Terminated`.
 
-    SIGHUP's default action ends the process outright, like ``kill -9``: a terminal or SSH
+    Their default action ends the process outright, like ``kill -9``: a terminal or SSH
     session closed during ``run`` or ``report`` left the staging folder, and a report's lies
     inside the result folder, which then failed its manifest check in ``verify``, ``load``
     and ``diff``. SIGXCPU's (a soft CPU-time limit: ``ulimit -St``, a scheduler's CPU
     limit) did the same with no line and a core dump where the core limit allows
-    (faults34). A signal already ignored (``nohup``, ``disown`` under some shells) stays
-    ignored. Returns the handlers replaced, to be put back.
+    (faults34); a scheduler's SIGUSR1 or SIGUSR2, a timer's SIGALRM and a UPS daemon's
+    SIGPWR ended every command with no line, and a batch with its Dask workers and
+    semaphores left to the system (faults35). A signal already ignored (``nohup``,
+    ``disown`` under some shells) or handled by the caller stays so. Returns the handlers
+    replaced, to be put back.
     """
     replaced = {signal.SIGTERM: signal.signal(signal.SIGTERM, _raise_terminated)}
-    for signum in (getattr(signal, "SIGHUP", None), _CPU_LIMIT):
-        if signum is not None and signal.getsignal(signum) is signal.SIG_DFL:
+    for signum in _STOP_NAMES:
+        if signum != signal.SIGTERM and signal.getsignal(signum) is signal.SIG_DFL:
             replaced[signum] = signal.signal(signum, _raise_terminated)
     return replaced
 

@@ -22,6 +22,7 @@ __all__ = [
     "TimestampError",
     "UnitError",
     "caller_stacklevel",
+    "read_fault_remedy",
 ]
 
 
@@ -117,3 +118,45 @@ def caller_stacklevel() -> int:
             package):
         frame, level = frame.f_back, level + 1
     return level
+
+
+def read_fault_remedy(error: OSError) -> str:
+    """What to do about a file the system would not read, told from `error`'s errno.
+
+    A refused permission calls for a permission fix; a fault of the medium or of the
+    file system that holds the file does not, and "make it readable by this user" sent
+    the user after permissions that were in order (a stale handle of a network share
+    reading a table in ``verify``, round faults35).
+
+    Parameters
+    ----------
+    error : OSError
+        What reading (or opening, or listing) the file raised.
+
+    Returns
+    -------
+    str
+        ``"; <remedy>"`` to append to the message naming the file, or ``""`` where the
+        error itself says all (an errno this function does not know).
+
+    References
+    ----------
+    POSIX ``open(2)``, ``read(2)``: EACCES, EPERM, EIO; Linux ``errno(3)``: ESTALE
+    ("stale file handle", NFS), ENOTCONN and EHOSTDOWN (a FUSE or network file system
+    whose connection is gone), ETIMEDOUT (m).
+    """
+    import errno
+
+    if error.errno in (errno.EACCES, errno.EPERM):
+        return "; make it and its folder readable by this user"
+    if error.errno == errno.EIO:
+        return ("; the disk, drive or network share holding it failed to deliver its bytes: "
+                "check the device (the system log), or read a sound copy of the file")
+    if error.errno == errno.ESTALE:
+        return ("; the network file system's handle went stale (the file was replaced on "
+                "the server, or the share was remounted): open the folder again (cd out "
+                "and back in) or remount the share, then run again")
+    if error.errno in (errno.ENOTCONN, errno.EHOSTDOWN, errno.ETIMEDOUT):
+        return ("; the network or FUSE file system holding it is not connected: mount it "
+                "again, then run again")
+    return ""

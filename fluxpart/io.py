@@ -73,6 +73,7 @@ from .errors import (
     MissingColumnError,
     TimestampError,
     UnitError,
+    read_fault_remedy,
 )
 from .fixed_width import delimited, fused_header_names, run_together_field
 from .key_hints import table_meaning_hint
@@ -2204,9 +2205,8 @@ def _cannot_read(path: Path, error: OSError) -> str:
     POSIX ``open(2)``: EACCES where a permission of the file or of a folder on its path
     is refused (m).
     """
-    fix = ("; make it and its folder readable by this user"
-           if error.errno in (errno.EACCES, errno.EPERM) else "")
-    return f"input file {str(path)!r} cannot be read: {error.strerror or error}{fix}"
+    return (f"input file {str(path)!r} cannot be read: {error.strerror or error}"
+            f"{read_fault_remedy(error)}")
 
 
 def _file_sha256(path: Path) -> str:

@@ -1302,6 +1302,10 @@ def build_report(directory, out=None, *, progress=None) -> Path:
                 atomic_write_bytes(staging / figure.name, figure.png)
             atomic_write_bytes(staging / "report.html", page)
     except OSError as error:        # a read-only medium, no permission, a full disk
+        # the result folder moved (mv) while the page was written into it: the swap found
+        # no folder at the old path, "cannot be written (No such file or directory); give
+        # --out a writable folder" sent the user after a fault that was not there
+        _require_same_folder(directory, read_from, out)
         remedy = (full_disk_remedy(out.parent, "free space, or give --out a writable folder")
                   if error.errno == errno.ENOSPC
                   else "free space, or give --out a writable folder"
@@ -1335,7 +1339,8 @@ def _require_same_folder(directory: Path, read_from, out: Path) -> None:
         Where `out` lies in `directory` and the folder there is gone or another one:
         the result was moved (``mv``), renamed or deleted while the figures were drawn,
         and the report was written into a new, otherwise empty folder of the old name
-        (or beside another result), a page describing a result that is not there.
+        (or beside another result), a page describing a result that is not there; also
+        where the write into it failed because it moved while the page was written.
 
     References
     ----------

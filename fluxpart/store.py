@@ -46,7 +46,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from .errors import InputFileError, OutputError, ResourceShortage
+from .errors import InputFileError, OutputError, ResourceShortage, read_fault_remedy
 
 __all__ = ["PANDAS_ATTRS_KEY", "arrow_table", "atomic_write_bytes", "column_units", "file_mode", "file_sha256",
            "folder_mode", "full_disk_remedy", "parquet_source", "read_table", "reader_attrs",
@@ -230,8 +230,8 @@ def unreadable(path, error: OSError) -> InputFileError:
     """
     where = error.filename if error.filename and str(error.filename) != str(path) else None
     place = f" (at {str(where)!r})" if where else ""
-    return InputFileError(f"{str(path)!r} cannot be read{place}: {error.strerror or error}; "
-                          "make it and its folder readable by this user")
+    return InputFileError(f"{str(path)!r} cannot be read{place}: {error.strerror or error}"
+                          f"{read_fault_remedy(error)}")
 
 
 def remove_stale(folder, pattern, *, keep=None) -> list[str]:

@@ -57,14 +57,20 @@ def test_a_network_table_is_read_on_the_calling_thread(tmp_path):
 
 
 _FORK_SERVER_SIGINT = """
-import signal
+import signal, sys
 from fluxpart import batch
 
-def nothing():
-    pass
+def ignored_by(pid):
+    with open(f"/proc/{pid}/status") as status:
+        return int(next(l for l in status if l.startswith("SigIgn:")).split()[1], 16)
+
+def worker(path):
+    batch.dask_setup(None)            # the Dask preload of every worker
+    with open(path, "w") as out:
+        out.write(str(ignored_by("self")))
 
 if __name__ == "__main__":
-    from multiprocessing import forkserver
+    from multiprocessing import forkserver, resource_tracker
 
     import dask
     from distributed.utils import get_mp_context
@@ -74,13 +80,18 @@ if __name__ == "__main__":
         context = get_mp_context()
     assert context.get_start_method() == "forkserver"
     forkserver.ensure_running()       # what the first worker's start calls; returns at once
-    pid = forkserver._forkserver._forkserver_pid
-    with open(f"/proc/{pid}/status") as status:   # at once: the server still imports
-        ignored = int(next(l for l in status if l.startswith("SigIgn:")).split()[1], 16)
-    child = context.Process(target=nothing)
+    server = ignored_by(forkserver._forkserver._forkserver_pid)  # at once: still importing
+    tracker = ignored_by(resource_tracker._resource_tracker._pid)
+    child = context.Process(target=worker, args=(sys.argv[1],))
     child.start()
     child.join()
-    print(bool(ignored & (1 << (signal.SIGINT - 1))))
+    with open(sys.argv[1]) as done:
+        forked = int(done.read())
+    for name in ("SIGINT", "SIGHUP", "SIGUSR1", "SIGUSR2"):
+        bit = 1 << (getattr(signal, name) - 1)
+        print(name, bool(server & bit), bool(tracker & bit), bool(forked & bit))
+    print("client", signal.getsignal(signal.SIGINT) is signal.default_int_handler,
+          signal.getsignal(signal.SIGHUP) is signal.SIG_DFL)
 """
 
 
@@ -93,11 +104,20 @@ def test_the_fork_server_ignores_ctrl_c_from_its_start(tmp_path):
     the half-started cluster: 36-49 lines of stderr after the one ``error:`` line. It is
     now started with SIGINT ignored, which an executed program keeps (POSIX exec (m)):
     the server's ``SigIgn`` mask (proc(5)) holds SIGINT as soon as it runs (before: not
-    until its imports were done)."""
+    until its imports were done).
+
+    Round faults35: the same for the other signals sent to the whole group, which the
+    batch process alone answers (``batch._group_stops``): a closed SSH session's SIGHUP
+    and a scheduler's SIGUSR1 or SIGUSR2 to every process of the job killed the fork
+    server, Python's resource tracker and the workers, 51 lines of stderr before the
+    batch's one line. The server, the tracker and a forked worker after its Dask preload
+    ignore them; the batch process's own handlers are put back."""
     script = tmp_path / "server.py"
     script.write_text(_FORK_SERVER_SIGINT, encoding="utf-8")
     env = {**os.environ, "PYTHONPATH": str(ROOT), "OMP_NUM_THREADS": "1"}
-    done = subprocess.run([sys.executable, str(script)], capture_output=True, text=True,
-                          env=env, timeout=180, cwd=tmp_path)
+    done = subprocess.run([sys.executable, str(script), str(tmp_path / "mask")],
+                          capture_output=True, text=True, env=env, timeout=180, cwd=tmp_path)
     assert done.returncode == 0, done.stderr
-    assert done.stdout.split() == ["True"]
+    assert done.stdout.splitlines() == [f"{name} True True True" for name in
+                                        ("SIGINT", "SIGHUP", "SIGUSR1", "SIGUSR2")] + [
+        "client True True"]
