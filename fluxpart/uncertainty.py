@@ -1712,7 +1712,10 @@ def ustar_sigma(sums: pd.DataFrame, percentiles) -> pd.Series:
         16/50/84 percentiles this is half the 16–84 range, a standard deviation
         if the sum is normal in the threshold's distribution; for 5/50/95 it is
         the 5–95 range over 3.29. The range over all runs is used because the
-        sum need not be monotonic in the threshold. NaN without scenarios. With
+        sum need not be monotonic in the threshold; it includes the central run,
+        so where the applied threshold lies beyond a scenario percentile (the
+        bootstrap reads low, :func:`fluxpart.ustar.detect_threshold`) the part
+        spans from it to the farthest scenario. NaN without scenarios. With
         a column ``ustar_year`` or ``ustar_seasonal`` (the other way of applying
         thresholds in a year whose seasons clearly differ: the year's on every
         night, or each season at its own; :mod:`fluxpart.ustar_seasonal`) its

@@ -812,7 +812,15 @@ def detect_threshold(index, nee, ustar, tair, is_night, latitude, *, detector="m
     Percentiles are taken over the draws that gave a threshold, with linear
     interpolation between order statistics (``pandas`` ``quantile``, the same
     as NumPy's default). The point estimate ``threshold`` is the detector's
-    result on the data themselves, not the bootstrap median.
+    result on the data themselves, not the bootstrap median; a draw that picks
+    every record once gives it exactly (one estimator). The draws of the moving
+    point test read a little low: a draw's u* class means scatter about the
+    truth by the sample's error and the resample's, while its resolution check
+    (``min_resolution``) sees only the resample's, and a noisier first class to
+    reach the plateau is found early. On 168 generated site-years the point
+    estimate lay a median 1.7 % above the draws' median (above their 84th
+    percentile in 25, below the 16th in 3), and 0.4 % from the planted
+    threshold against the median's −1.8 % (round ustar47, DEVELOPERS.md).
 
     Where no season of any year gives a threshold, each year's night records
     are tested again as one season (detector and bootstrap alike); a year so

@@ -241,6 +241,44 @@ def test_bootstrap_is_reproducible_for_a_seed():
     assert set(first["period"]) == {"year", "winter", "spring", "summer", "autumn"}
 
 
+class _IdentityDraws:
+    """A stand-in generator whose every draw picks each night record once, in order."""
+
+    def __init__(self, group):
+        size = np.bincount(group)
+        position = np.arange(len(group)) - np.concatenate(([0], np.cumsum(size)[:-1]))[group]
+        self.uniform = (position + 0.5) / size[group]
+
+    def random(self, shape):
+        return np.broadcast_to(self.uniform, shape).copy()
+
+
+@pytest.mark.parametrize("detector", ["moving_point", "change_point"])
+def test_a_draw_of_the_records_themselves_gives_the_point_estimate(detector, monkeypatch):
+    """The draws and the point estimate are one estimator: a resample that is the data."""
+    # Efron & Tibshirani (1993), An Introduction to the Bootstrap, ch. 6 (m): a bootstrap
+    # replication is the same statistic computed on the resample. Round ustar47 found the
+    # applied threshold above its bootstrap's p84 in 25 of 168 generated site-years; this
+    # pins that no other class assignment, floor or aggregation in the draws causes it.
+    index, nee, friction, tair, is_night = _night_record(9)
+    seasons = assign_seasons(index, 48.0)
+    found = (moving_point_threshold(nee, friction, tair, is_night, seasons)
+             if detector == "moving_point"
+             else change_point_threshold(nee, friction, is_night, seasons, tair=tair))
+    group = ustar._night_data(nee, friction, tair, is_night, seasons, need_tair=True).group
+    monkeypatch.setattr(np.random, "default_rng", lambda seed: _IdentityDraws(group))
+    draws = bootstrap_threshold(nee, friction, tair, is_night, seasons, detector=detector,
+                                draws=2)
+    annual = draws[draws["period"] == "year"]
+    seasonal = draws[draws["period"] != "year"].set_index(["draw", "year", "period"])
+    expected = found.seasonal.set_index(["year", "season"])["threshold"]
+    assert np.isfinite(found.annual["threshold"]).all() and expected.notna().sum() >= 3
+    assert np.array_equal(annual["threshold"], np.repeat(found.annual["threshold"], 2))
+    for draw in (0, 1):
+        np.testing.assert_array_equal(seasonal.loc[draw]["threshold"].sort_index(),
+                                      expected.sort_index())
+
+
 def test_bootstrap_spread_narrows_with_more_data():
     """The 5–95 % spread of the annual threshold is narrower with three times the data."""
     # common practice: sampling spread shrinks roughly as 1/sqrt(n).
