@@ -223,12 +223,14 @@ def test_cr_cr_lf_line_ends_under_a_units_line_name_the_blank_lines(tmp_path):
     _assert_records(read, frame, ends)
 
 
-@pytest.mark.parametrize("extra", [None, "__MACOSX/._t.csv"])
+@pytest.mark.parametrize("extra", [None, "__MACOSX/._t.csv", "data/.DS_Store", "Thumbs.db"])
 def test_a_zip_of_one_table_is_read_as_the_table(tmp_path, extra):
     """Before: refused ("unpack it"), while a gzip file of the same table was read; a zip
     made on macOS holds each file's resource fork under __MACOSX/ beside it (Apple's
     AppleDouble format (m)), which holds no records. The archive is read through the
-    standard library's zipfile (PKWARE APPNOTE (m))."""
+    standard library's zipfile (PKWARE APPNOTE (m)). A zip of a folder takes along the
+    files a desktop writes into it, Finder's .DS_Store and Explorer's Thumbs.db (m),
+    which hold no records either (review47: refused as a second file before)."""
     import zipfile
 
     frame, ends = _records()
