@@ -295,17 +295,19 @@ _ENDING_AT = _LazyPattern(
 #: "after the timestamp" (a duration after "the", "each", "its" or "a" before the word,
 #: and no change of the stamps after it, so that "values before the timestamp change",
 #: "gaps of 30 min before the timestamp change" and "30 min before the timestamp of each
-#: reboot" state nothing: review47); the "left edge" of the averaging window; the
+#: reboot" state nothing, nor a window of another length than a record's, 30 or 60 min,
+#: "the 3 h after the time stamp" of a despiking window, nor the end "of a" calibration
+#: run a record is "marked by": review47); the "left edge" of the averaging window; the
 #: period that "closes" (a word for the stamps before it), the time "at which the period
 #: ends" ("interval starts" alone may be a plural: "stamps shifted to interval
 #: starts" tells a conversion); stamps "centred on the averaging period" or at
 #: "interval midpoints". No date may follow ("period ends 2021-12-31" dates an event).
 _PHRASED_PLACE = _LazyPattern(
     r"(?:\b(?:labell?ed|stamped|marked|dated|indexed)\s+(?:with|at|by)\s+(?:the\s+|its\s+)?"
-    r"(start|beginning|begin|end|middle|centre|center|midpoint)\b"
+    r"(start|beginning|begin|end|middle|centre|center|midpoint)\b(?!\s+of\s+an?\b)"
     r"|\b(ending|beginning|starting|centred|centered)\s+(?:at|on)\s+(?:the\s+)?"
     r"(?:time\s+(?:shown|given|written|listed)|time\s*stamps?|timestamps?|stamps?)\b"
-    r"|\b(?:the|each|its|a)\s+(?:\d+(?:\.\d+)?[\s-]*)?(?:half[\s-]+)?"
+    r"|\b(?:the|each|its|a)\s+(?:(?:30|60|1|one)[\s-]*)?(?:half[\s-]+)?"
     r"(?:min(?:ute)?s?|hours?|h|interval|period)\s+(?:immediately\s+)?"
     r"(preceding|following|before|after|prior\s+to|up\s+to)\s+(?:the\s+|each\s+|its\s+)?"
     r"(?:time\s*stamps?|timestamps?|stamps?|time\s+(?:shown|given|label))\b"

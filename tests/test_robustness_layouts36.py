@@ -155,6 +155,9 @@ def test_year_day_of_year_and_hhmm_with_2400_read_record_for_record(tmp_path, hh
     ("Data gaps of 30 min before the timestamp change were removed", None),
     ("30 min before the timestamp of each logger reboot data were discarded", None),
     ("Values are 30-min averages over the period preceding the time stamp", "end"),
+    ("Despiking window: the 3 h after the time stamp", None),     # not a record's length
+    ("Periods marked by the end of a calibration run were removed", None),
+    ("Values are means of the 60 minutes before the timestamp", "end"),
 ])
 def test_places_phrased_around_the_stamps_are_read(line, place):
     assert stated_place(line) == place
