@@ -194,8 +194,7 @@ def _zip_members(data: bytes) -> list | None:
 
     try:
         with zipfile.ZipFile(io.BytesIO(data)) as archive:
-            return [info.filename for info in archive.infolist()
-                    if not info.is_dir() and not info.filename.startswith(_ZIP_EXTRAS)]
+            return [info.filename for info in _user_files(archive)]
     except (zipfile.BadZipFile, OSError, ValueError, EOFError):
         return None
 
@@ -203,11 +202,24 @@ def _zip_members(data: bytes) -> list | None:
 #: Archive members that hold no file of the user's: the resource forks macOS writes
 #: beside each file it zips ("__MACOSX/._name", Apple's AppleDouble format (m)).
 _ZIP_EXTRAS = "__MACOSX/"
+#: Files a desktop writes into a folder by itself, which a zip of the folder takes along:
+#: macOS Finder's view settings ".DS_Store", Windows Explorer's thumbnail cache
+#: "Thumbs.db" and folder settings "desktop.ini" (m) (review47: a zip of a folder holding
+#: one table and its .DS_Store was refused as "holding 2 files").
+_DESKTOP_FILES = frozenset({".ds_store", "thumbs.db", "desktop.ini"})
+
+
+def _user_files(archive) -> list:
+    """The members of an open :class:`zipfile.ZipFile` that are files of the user's:
+    folders, macOS resource forks and desktop files (:data:`_DESKTOP_FILES`) left out."""
+    return [info for info in archive.infolist()
+            if not info.is_dir() and not info.filename.startswith(_ZIP_EXTRAS)
+            and info.filename.rsplit("/", 1)[-1].lower() not in _DESKTOP_FILES]
 
 
 def single_zip_member(data: bytes) -> bytes | None:
     """The bytes of the one file a zip archive holds, or None where it holds another
-    number (macOS's ``__MACOSX/`` forks not counted), is a workbook, holds an archive or
+    number (macOS's ``__MACOSX/`` forks and desktop files not counted), is a workbook, holds an archive or
     cannot be read (damaged, encrypted).
 
     A zip of one text table is the table, as a gzip file is (layouts36; refused before
@@ -219,8 +231,7 @@ def single_zip_member(data: bytes) -> bytes | None:
 
     try:
         with zipfile.ZipFile(io.BytesIO(data)) as archive:
-            files = [info for info in archive.infolist()
-                     if not info.is_dir() and not info.filename.startswith(_ZIP_EXTRAS)]
+            files = _user_files(archive)
             if len(files) != 1 or files[0].filename in ("[Content_Types].xml", "mimetype") \
                     or files[0].filename.lower().endswith((".zip", ".7z", ".tar", ".tgz")):
                 return None

@@ -189,11 +189,11 @@ def _engine() -> str:
         return engine
     if refused:
         raise FluxpartError(_not_loaded(*refused))
-    from .install_hints import install_command
+    from .install_hints import install_command, package_command
 
     raise FluxpartError("writing NetCDF needs netCDF4, or h5netcdf together with h5py (recent "
                         "h5netcdf releases do not install h5py themselves); install the netcdf "
-                        f"extra: {install_command('netcdf')} (or pip install h5py)")
+                        f"extra: {install_command('netcdf')} (or {package_command('h5py')})")
 
 
 def _not_loaded(module: str, text: str) -> str:

@@ -15,7 +15,7 @@ import sys
 import tomllib
 from pathlib import Path
 
-__all__ = ["install_command"]
+__all__ = ["install_command", "package_command"]
 
 
 def _checkout() -> Path | None:
@@ -55,10 +55,27 @@ def install_command(extra: str, *, reinstall: bool = False) -> str:
     """
     root = _checkout()
     target = f"{root}[{extra}]" if root else f"<folder of your fluxpart checkout>[{extra}]"
-    python = f'"{sys.executable}"' if " " in sys.executable else sys.executable
     flags = "--force-reinstall " if reinstall else ""
-    command = f'{python} -m pip install {flags}"{target}"'
+    command = f'{_python()} -m pip install {flags}"{target}"'
     if root is None:
         command += (" (a path: the name fluxpart on the package index belongs to another "
                     "project)")
     return command
+
+
+def _python() -> str:
+    """The running interpreter, quoted where its path holds a blank."""
+    return f'"{sys.executable}"' if " " in sys.executable else sys.executable
+
+
+def package_command(name: str) -> str:
+    """The command that installs the package `name` of the package index into the running
+    environment: ``<python> -m pip install <name>`` (review47: the NetCDF hint's "pip
+    install h5py" may install into another environment than the one lacking it).
+
+    References
+    ----------
+    Python Packaging User Guide, "Installing packages": ``python -m pip`` installs into
+    the environment of that interpreter (m).
+    """
+    return f"{_python()} -m pip install {name}"

@@ -292,20 +292,27 @@ _ENDING_AT = _LazyPattern(
 #: each left unread, so that a file stating start stamps was read an interval late under
 #: time_marks = "end"): stamps "labelled with the start time", "stamped at the end"; the
 #: averages "ending at the time shown", the 30 minutes "preceding the time stamp" or
-#: "after the timestamp" (a duration before the word, so that "values before the
-#: timestamp change" states nothing); the "left edge" of the averaging window; the
+#: "after the timestamp" (a duration after "the", "each", "its" or "a" before the word,
+#: and no change of the stamps after it, so that "values before the timestamp change",
+#: "gaps of 30 min before the timestamp change" and "30 min before the timestamp of each
+#: reboot" state nothing, nor a window of another length than a record's, 30 or 60 min,
+#: "the 3 h after the time stamp" of a despiking window, nor the end "of a" calibration
+#: run a record is "marked by": review47); the "left edge" of the averaging window; the
 #: period that "closes" (a word for the stamps before it), the time "at which the period
 #: ends" ("interval starts" alone may be a plural: "stamps shifted to interval
 #: starts" tells a conversion); stamps "centred on the averaging period" or at
 #: "interval midpoints". No date may follow ("period ends 2021-12-31" dates an event).
 _PHRASED_PLACE = _LazyPattern(
     r"(?:\b(?:labell?ed|stamped|marked|dated|indexed)\s+(?:with|at|by)\s+(?:the\s+|its\s+)?"
-    r"(start|beginning|begin|end|middle|centre|center|midpoint)\b"
+    r"(start|beginning|begin|end|middle|centre|center|midpoint)\b(?!\s+of\s+an?\b)"
     r"|\b(ending|beginning|starting|centred|centered)\s+(?:at|on)\s+(?:the\s+)?"
     r"(?:time\s+(?:shown|given|written|listed)|time\s*stamps?|timestamps?|stamps?)\b"
-    r"|\b(?:min(?:ute)?s?|hours?|h|interval|period)\s+(?:immediately\s+)?"
+    r"|\b(?:the|each|its|a)\s+(?:(?:30|60|1|one)[\s-]*)?(?:half[\s-]+)?"
+    r"(?:min(?:ute)?s?|hours?|h|interval|period)\s+(?:immediately\s+)?"
     r"(preceding|following|before|after|prior\s+to|up\s+to)\s+(?:the\s+|each\s+|its\s+)?"
     r"(?:time\s*stamps?|timestamps?|stamps?|time\s+(?:shown|given|label))\b"
+    r"(?!\s+(?:changes?|changed|shifts?|shifted|jumps?|corrections?|corrected|resets?"
+    r"|errors?|drift))"
     r"|\b(left|right)[\s-]+(?:edge|side|bound)\s+of\s+(?:the\s+|each\s+)?"
     r"(?:averaging\s+)?(?:window|interval|period)\b"
     r"|\b(?:time\s*stamps?|timestamps?|stamps?)\b[^.;]{0,40}?\b(?:interval|period|window)"
@@ -378,6 +385,12 @@ _ZONE_KEY = _LazyPattern(r"(?:time[\s_-]*zone(?:[\s_-]*offset)?|zeitzone|\btz\b|
 #: words (layouts36: read only after a zone key before)
 _STAMPS_AHEAD = _LazyPattern(r"\b(?:time\s*stamps?|timestamps?|stamps?|times|clock|logger)\b"
                              r"[^.;0-9]{0,20}?(?=\d)")
+#: Words of a clock's error rather than its zone ("the logger was 5 min behind GMT until
+#: March", "clock drift: 3 min ahead of UTC, corrected"): such a line states no zone of the
+#: stamps (review47: read as UTC-00:05 and the honest file refused). Every zone's offset
+#: is a whole number of quarter hours (IANA tz: +05:45, +12:45 the finest (m)).
+_CLOCK_ERROR = _LazyPattern(r"\b(?:was|were|had\s+been|until|drift\w*|corrected|fast|slow"
+                            r"|lag(?:s|ged|ging)?|error)\b")
 _RELATIVE_OFFSET = _LazyPattern(r"(\d{1,2}(?:\.\d+)?)\s*(h|hrs?|hours?|min|mins|minutes?)?\s+"
                                 r"(ahead\s+of|behind|east\s+of|west\s+of)\s+(?:utc|gmt)")
 #: "Logger clock offset: UTC+02:00", "clock_offset = +0200": a clock's offset key, read
@@ -658,8 +671,11 @@ def stated_offset(text: str) -> float | None:
         if offset is not None:
             return offset
     ahead = _STAMPS_AHEAD.search(lowered)
-    if ahead and _RELATIVE_OFFSET.match(lowered, ahead.end()):
-        return _value_clock(lowered[ahead.end():])     # "Stamps are 2 h ahead of UTC"
+    if ahead and _RELATIVE_OFFSET.match(lowered, ahead.end()) \
+            and not _CLOCK_ERROR.search(lowered):
+        offset = _value_clock(lowered[ahead.end():])   # "Stamps are 2 h ahead of UTC"
+        if offset is not None and np.isclose(offset * 4, round(offset * 4)):
+            return offset       # a zone's offset: whole quarter hours, not a clock's drift
     spelled = spelled_zone_offset(lowered)        # "All times in Coordinated Universal Time"
     if spelled is not None and _ABOUT_STAMPS.search(_SPELLED.sub(" ", lowered)):
         return spelled                            # not a title that names a zone in passing

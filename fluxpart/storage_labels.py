@@ -50,6 +50,11 @@ FLUX_WORDS = frozenset({"flux", "flx", "fluxes", "nee", "nep", "incl", "includin
 STATISTIC_WORDS = frozenset({"flag", "flags", "qc", "quality", "sd", "std", "stdev", "sigma",
                              "var", "min", "max", "n", "count", "unc", "uncertainty", "err",
                              "error"})
+#: Words that say a column is the CO2 concentration of a storage profile, not the
+#: storage term ("co2_storage_profile_ppm", "co2_conc_storage_level"; review47: named as
+#: a storage column to map before): a mole fraction or density, no flux (our choice).
+CONCENTRATION_WORDS = frozenset({"ppm", "ppb", "conc", "concentration", "mixing",
+                                 "molfrac", "fraction", "density", "dens"})
 
 
 def label_words(name) -> set[str]:
@@ -129,7 +134,7 @@ def unmapped_storage_column(nee_column, file_columns, taken) -> str | None:
         :data:`STORAGE_WORDS`, none of :data:`TURBULENT_WORDS`), or no unused column's
         name holds a word of
         :data:`STORAGE_WORDS` and one of :data:`CO2_WORDS` and none of
-        :data:`FLUX_WORDS` or :data:`STATISTIC_WORDS`.
+        :data:`FLUX_WORDS`, :data:`STATISTIC_WORDS` or :data:`CONCENTRATION_WORDS`.
 
     Notes
     -----
@@ -158,7 +163,7 @@ def unmapped_storage_column(nee_column, file_columns, taken) -> str | None:
             continue
         words = label_words(column)
         if (words & STORAGE_WORDS and words & CO2_WORDS
-                and not words & (FLUX_WORDS | STATISTIC_WORDS)):
+                and not words & (FLUX_WORDS | STATISTIC_WORDS | CONCENTRATION_WORDS)):
             found.append(str(column))
     if not found:
         return None

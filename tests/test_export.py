@@ -560,6 +560,7 @@ def test_without_h5py_the_export_is_one_error_line_and_nothing_written(written_d
     assert main(["export", str(folder), "--netcdf", str(target)]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("error:") and "h5py" in err[0]
+    assert f"(or {sys.executable} -m pip install h5py)" in err[0]     # this environment's
     assert list(tmp_path.iterdir()) == []
 
 

@@ -151,6 +151,13 @@ def test_year_day_of_year_and_hhmm_with_2400_read_record_for_record(tmp_path, hh
     ("Records dated at the end 2021-06-30 were removed", None),
     ("Stamps shifted by -30 min to interval starts", None),    # a conversion told
     ("Stamp gives the time at which the averaging period ends", "end"),
+    # review47: honest notes of a gap or an event near a stamp, read as end stamps before
+    ("Data gaps of 30 min before the timestamp change were removed", None),
+    ("30 min before the timestamp of each logger reboot data were discarded", None),
+    ("Values are 30-min averages over the period preceding the time stamp", "end"),
+    ("Despiking window: the 3 h after the time stamp", None),     # not a record's length
+    ("Periods marked by the end of a calibration run were removed", None),
+    ("Values are means of the 60 minutes before the timestamp", "end"),
 ])
 def test_places_phrased_around_the_stamps_are_read(line, place):
     assert stated_place(line) == place
@@ -193,6 +200,11 @@ def test_a_byte_of_another_encoding_in_a_cr_only_file_is_named_on_its_line(tmp_p
     ("Logger clock synchronised to UTC", None), ("Logger set to record every 30 min", None),
     ("Logger runs on battery", None), ("Times are 2 h from UTC", None),
     ("Logger 3 h ahead of schedule", None),
+    # review47: a clock's drift, not its zone (every zone's offset is whole quarter hours,
+    # IANA tz (m)); read as UTC-00:05 before, and an honest file refused
+    ("Clock drift corrected; the logger was 5 min behind GMT until March", None),
+    ("Logger time 3 min ahead of UTC was corrected on 2020-05-01", None),
+    ("Logger clock is 5 min ahead of UTC", None), ("Stamps are 5 h behind GMT", -5.0),
 ])
 def test_clocks_phrased_otherwise_are_read(line, offset):
     assert stated_offset(line) == offset
@@ -214,12 +226,14 @@ def test_cr_cr_lf_line_ends_under_a_units_line_name_the_blank_lines(tmp_path):
     _assert_records(read, frame, ends)
 
 
-@pytest.mark.parametrize("extra", [None, "__MACOSX/._t.csv"])
+@pytest.mark.parametrize("extra", [None, "__MACOSX/._t.csv", "data/.DS_Store", "Thumbs.db"])
 def test_a_zip_of_one_table_is_read_as_the_table(tmp_path, extra):
     """Before: refused ("unpack it"), while a gzip file of the same table was read; a zip
     made on macOS holds each file's resource fork under __MACOSX/ beside it (Apple's
     AppleDouble format (m)), which holds no records. The archive is read through the
-    standard library's zipfile (PKWARE APPNOTE (m))."""
+    standard library's zipfile (PKWARE APPNOTE (m)). A zip of a folder takes along the
+    files a desktop writes into it, Finder's .DS_Store and Explorer's Thumbs.db (m),
+    which hold no records either (review47: refused as a second file before)."""
     import zipfile
 
     frame, ends = _records()

@@ -191,6 +191,9 @@ def test_nee_mapped_as_the_storage_column_is_refused(tmp_path):
     ("co2_flux", ["co2_flux", "co2_flux_storage_corr"], False),   # a flux, not the term
     ("co2_flux", ["co2_flux", "co2_flux"], False),
     ("co2_flux", ["co2_flux", "co2_store_flag", "co2_storage_sd"], False),   # statistics
+    # review47: a storage profile's concentrations (mole fraction, density) are no term
+    ("co2_flux", ["co2_flux", "co2_storage_profile_ppm", "co2_conc_storage_2m"], False),
+    ("co2_flux", ["co2_flux", "co2_storage_profile"], True),
     ("co2_flux_incl_storage", ["co2_flux_incl_storage", "co2_store"], False),
     ("co2_flux_no_storage", ["co2_flux_no_storage", "co2_store"], True)])
 def test_a_co2_storage_column_left_unmapped_beside_a_turbulent_flux_is_named(flux, columns,
