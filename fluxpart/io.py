@@ -573,8 +573,8 @@ def read_config(path) -> tuple[pd.DataFrame, Site]:
     ----------
     path : str or path-like
         The site config (TOML; its tables ``[site]``, ``[input]``, ``[input.columns]``,
-        ``[input.units]`` and ``[processing]`` as the README's "Your own site" and
-        "Logger files as they come" give them); its ``[input] path`` is relative to the
+        ``[input.units]`` and ``[processing]`` as the README's "Your own site" and the
+        page it links, docs/logger-files.md, give them); its ``[input] path`` is relative to the
         folder of the file as named.
 
     Returns

@@ -534,7 +534,8 @@ def test_every_setting_is_named_in_the_readme_table_of_what_it_computes():
     README's "What it computes" table, by name or by a `prefix_*` the table gives (review43:
     rg_relative_margin and four settings of the moving point test were in no row)."""
     text = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
-    table = text[text.index("## What it computes"):text.index("## Output files")]
+    start = text.index("\n## What it computes\n")
+    table = text[start:text.index("\n## ", start + 1)]
     prefixes = re.findall(r"`(\w+)_\*`", table)
     unnamed = [field.name for field in dataclasses.fields(Config)
                if f"`{field.name}`" not in table
