@@ -4,7 +4,7 @@ Run from the repository root:  python examples/make_logger_example.py
 Quillmoor is invented; its data are simulated by fluxpart.demo (variant "c4", seed 3).
 
 The files imitate what a tower's logger and a spreadsheet make of a year, so that the
-site config shows every reader setting for such layouts (README "Your own site"):
+site config shows every reader setting for such layouts (docs/logger-files.md):
 
 - two files, one per half-year, overlapping by one day of identical rows
   (``path = "quillmoor_maize_logger/maize_*.dat"``);
