@@ -1023,7 +1023,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
 
     derived: list[str] = []
     source_of = dict(mapping)
-    storage_missing = 0
+    storage_missing, storage_smooths = 0, False
     if "storage" in converted:
         turbulent, storage = converted["nee"], converted.pop("storage")
         lacking = np.isfinite(turbulent) & ~np.isfinite(storage)
@@ -1075,6 +1075,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             counted_twice = storage_smooths_nee(turbulent, storage,
                                                 np.asarray(potential) <= 0.0, starts,
                                                 interval_minutes, mapping)
+            storage_smooths = counted_twice is not None
         if counted_twice and FLUX_COPY_WORDS in counted_twice:
             # a flux mapped as storage: NEE counted twice cannot be right (mistakes38)
             accepted.append(_refuse_or_warn(
@@ -1245,6 +1246,12 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     if written_limit is not None:
         # the preflight's cut rule leaves this end of NEE to the reader's message
         frame.attrs["nee_written_limit"] = written_limit
+    if storage_smooths:
+        from .storage_size import STORAGE_SMOOTHS_MARK
+
+        # the preflight's smoothed-NEE finding is this storage column's, named here
+        # (screening_stage leaves it out; a mark, not the message's wording, review47)
+        frame.attrs[STORAGE_SMOOTHS_MARK] = True
     if accept_units:
         # read_config -> process: process checks a caller's frame's units again, but not
         # those the site config accepted as they are

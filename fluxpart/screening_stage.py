@@ -16,7 +16,7 @@ import pandas as pd
 
 from . import clock, preflight, screening, solar, unit_checks
 from .errors import ConfigError, ImplausibleValueError, InsufficientDataError
-from .storage_size import SMOOTHS_WORDS
+from .storage_size import STORAGE_SMOOTHS_MARK
 from .variables import VARIABLES
 
 
@@ -144,7 +144,7 @@ def clock_and_preflight(frame, site, config, interval, geometry, is_night, scree
         frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),
         screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval,
         reader.get("columns"), sun_elevation=geometry["sun_elevation"].to_numpy())
-    if any(SMOOTHS_WORDS in text for text in reader.get("warnings", ())):
+    if frame.attrs.get(STORAGE_SMOOTHS_MARK):
         # the reader found the storage column behind the smoothness (round mistakes41)
         findings = [f for f in findings if f.stage != "input (nee smoothed)"]
     findings = preflight.defer_to_clock(findings, None if verdict is None else verdict.status)
