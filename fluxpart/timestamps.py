@@ -1951,7 +1951,7 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
             if seconds:
                 raise SpacingError(seconds)
             raise SpacingError(f"the most common spacing between stamps is {typical:g} minutes "
-                               f"({share:.0%} of steps{_spacing_where(steps, typical, describe)}); "
+                               f"({100 * share:.0f} % of steps{_spacing_where(steps, typical, describe)}); "
                                "fluxpart needs 30- or 60-minute records: average "
                                f"{_spacing_what(steps, typical)} to 30 or 60 minutes first")
         declared = int(typical)
