@@ -1154,7 +1154,8 @@ def values_written_twice(values, name: str, interval_minutes: float, sunlit=None
         return None
     column = (columns or {}).get(name, name)
     return (f"{name} (column {column!r}) repeats its value in the next record in "
-            f"{100 * high:.0f} % of the record pairs of one phase and {100 * low:.0f} % of the other: values "
+            f"{100 * high:.0f} % of the record pairs of one phase and {100 * low:.0f} % of the "
+            "other: values "
             f"of {2 * interval_minutes:g} minutes written twice into {interval_minutes:g}-"
             "minute records (a coarser file joined by a forward fill), so every other "
             "record holds the previous interval's value; join the coarser values to their "
@@ -1658,8 +1659,8 @@ def dew_point_as_tair(tair, rh, vpd, columns=None) -> str | None:
     return (f"air temperature (column {names.get('tair', 'tair')!r}) looks like the dew "
             f"point: the VPD column ({names.get('vpd', 'vpd')!r}) is a median {misfit:.2f} "
             "times e_s(tair) (1 - RH / 100), while RH / 100 times it matches that to "
-            f"{100 * abs(identity - 1.0):.1f} % (the identity e_s(dew point) = vapour pressure, over "
-            f"{int(usable.sum())} records): map the air temperature as tair, or respiration "
+            f"{100 * abs(identity - 1.0):.1f} % (the identity e_s(dew point) = vapour pressure, "
+            f"over {int(usable.sum())} records): map the air temperature as tair, or respiration "
             "and the light response read temperatures several K too low")
 
 
@@ -2569,9 +2570,10 @@ def rg_blank_in_the_dark(rg, potential, columns=None) -> str | None:
     if dark_missing < _DARK_BLANK_SHARE or sunlit_missing >= 1.0 - _SUNLIT_PRESENT_SHARE:
         return None
     column = (columns or {}).get("rg", "rg")
-    return (f"rg (column {column!r}) is missing in {100 * dark_missing:.0f} % of the {int(dark.sum())} "
-            f"records with the sun down but in {100 * sunlit_missing:.0f} % of those with the sun up: "
-            "a logger or export that writes no value in the dark (or below a threshold) reads "
+    return (f"rg (column {column!r}) is missing in {100 * dark_missing:.0f} % of the "
+            f"{int(dark.sum())} "
+            f"records with the sun down but in {100 * sunlit_missing:.0f} % of those with the sun "
+            "up: a logger or export that writes no value in the dark (or below a threshold) reads "
             "like this; a pyranometer reads 0 there within a few W m-2, so write 0 for the "
             "night in a copy of the file (as it is, every night is a driver gap: the daytime "
             "method's sums come out NaN and the clock check cannot judge)")

@@ -1182,7 +1182,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     frame.index.name = "time"
     ranges, runs = inserted_runs(inserted, interval_minutes)
     if len(full) and len(inserted) > 0.25 * len(full):
-        warnings.append(f"{len(inserted)} of {len(full)} stamps ({100 * (len(inserted) / len(full)):.0f} %) "
+        warnings.append(f"{len(inserted)} of {len(full)} stamps "
+                        f"({100 * (len(inserted) / len(full)):.0f} %) "
                         "are absent from the file and were inserted as missing; check "
                         "interval_minutes and whether the file changes its interval")
     for name in mapping:
@@ -4276,7 +4277,8 @@ def _flag_scale_message(flags: list, flag_columns: list, flag_accept, rejected: 
     order = np.argsort(-counts, kind="stable")[:6]
     shown = ", ".join(f"{values[i]:g} in {counts[i]}" for i in order)
     return (f"nee_flag: {rejected} of {judged} records with an NEE value "
-            f"({100 * (rejected / judged):.1f} %) are rejected by {' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)} "
+            f"({100 * (rejected / judged):.1f} %) are rejected by {' + '.join(flag_columns)} with "
+            f"[input] flag_accept = {list(flag_accept)} "
             f"(the flags hold {shown} records): either flag_accept names the values of bad "
             "records (a flag of the other scale, a higher value for a better record), or the "
             "site's own checks reject nearly every record, which leaves no budget (towers "

@@ -236,8 +236,8 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
         return None
     declared = unit if unit is not None else variable.unit
     message = (f"column {column!r} ({name}, read as {declared!r}): {int(outside.sum())} of "
-               f"{present.size} present values ({100 * share:.1f} %) lie outside the plausible range "
-               f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; median "
+               f"{present.size} present values ({100 * share:.1f} %) lie outside the plausible "
+               f"range [{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; median "
                f"{median:.4g} {variable.unit}")
     raw_present = file_values[np.isfinite(file_values)]
     outside_raw = raw_present[_outside(name, to_canonical(raw_present, name, unit,
@@ -862,8 +862,8 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
                                   / declared_scale, 99) >= 0.1]
         fix = (f"the values look like {fits[0]!r}: set [input.units] vpd = \"{fits[0]}\""
                if fits else "check the column mapping and [input.units] vpd")
-        return (f"column {columns['vpd']!r} (vpd, read as {shown!r}): {100 * above.mean():.0f} % of "
-                "records exceed the saturation vapour pressure at tair (median "
+        return (f"column {columns['vpd']!r} (vpd, read as {shown!r}): {100 * above.mean():.0f} % "
+                "of records exceed the saturation vapour pressure at tair (median "
                 f"{np.median(ratio):.3g} times it), which no air can; {fix} (or list vpd in "
                 "[input] accept_units)"), None
     # values too small: a larger unit read as the declared one (kPa read as hPa, or kPa
@@ -1034,8 +1034,9 @@ def _declared_fahrenheit(name: str, converted: dict, columns: dict, interval_min
             written = np.mean(vpd[both] > 1.1 * saturation_vapour_pressure(as_celsius[both])
                               + 1.0)
             if read > IMPLAUSIBLE_SHARE and written <= IMPLAUSIBLE_SHARE:
-                evidence = (f"VPD exceeds the saturation vapour pressure at it in {100 * read:.0f} % "
-                            f"of records, which no air can, and in {100 * written:.0f} % with the "
+                evidence = ("VPD exceeds the saturation vapour pressure at it in "
+                            f"{100 * read:.0f} % of records, which no air can, and in "
+                            f"{100 * written:.0f} % with the "
                             "values read as °C")
     if evidence is None:
         return None
@@ -1385,7 +1386,8 @@ def _flag_rejects_most(frame, share: float) -> str | None:
     held = ", ".join(f"{value:g}" for value in np.unique(values[judged])[:10])
     records = "records with an NEE value" if with_nee else "records"
     return (f"column 'nee_flag': {int(rejected.sum())} of {int(judged.sum())} {records} "
-            f"({100 * (rejected.sum() / judged.sum()):.1f} %) are rejected, as process() keeps a record "
+            f"({100 * (rejected.sum() / judged.sum()):.1f} %) are rejected, as process() keeps a "
+            "record "
             f"only where nee_flag is 0 (or missing); the flags hold {held}: where 1 (or True) "
             "means a good record, pass (frame[\"nee_flag\"] == 0) instead")
 

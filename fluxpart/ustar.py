@@ -1451,7 +1451,8 @@ def _annual_columns(years, season_names, core, detector, floor) -> dict:
             reason[y] = "no season of the year gave a threshold"
         elif np.isnan(detected[y]):
             reason[y] = (f"{int(accepted[y])} of {int(tested[y])} strata with a significant "
-                         f"change point (at least {100 * core['min_significant_share']:.0f} % needed)")
+                         f"change point (at least {100 * core['min_significant_share']:.0f} % "
+                         "needed)")
         elif detector == "moving_point" and seasons_used[y] < 4:
             found = set(season_names[(year_of_group == y) & has])
             absent = [season for season in SEASONS if season not in found]
