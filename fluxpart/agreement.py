@@ -86,11 +86,12 @@ def disagreements(annual: pd.DataFrame, margin: float) -> list[str]:
         beyond = [flux for flux in compared if abs(relative[flux]) > margin]
         if beyond:
             parts = [f"{_LABELS[flux]} daytime - nighttime = "
-                     f"{row[f'{flux}_method_difference']:+.0f} g C m-2 ({relative[flux]:+.0%})"
+                     f"{row[f'{flux}_method_difference']:+.0f} g C m-2 "
+                     f"({100 * relative[flux]:+.0f} %)"
                      for flux in compared]
             parts += [f"{name} not compared (a method gave no annual sum)" for name in missing]
             messages.append(f"{year}: the daytime and nighttime partitionings disagree by more "
-                            f"than agreement_margin = {margin:.0%}: {'; '.join(parts)}")
+                            f"than agreement_margin = {100 * margin:.0f} %: {'; '.join(parts)}")
         else:
             messages.append(f"{year}: the daytime and nighttime partitionings could not be "
                             f"compared for {' and '.join(missing)}: a method gave no annual sum")

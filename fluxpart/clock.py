@@ -1058,8 +1058,8 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
             notes.append(
                 f"clock: Rg peaks {median:+.0f} min (spread {spread:.0f} min) against the sun "
                 f"but its rise and fall say {edge_median:+.0f} min (spread {edge_spread:.0f} "
-                f"min) and {agree:.0%} of {len(used)} months agree: a tilted or partly shaded "
-                "Rg sensor rather than a clock error; not called a clock problem")
+                f"min) and {100 * agree:.0f} % of {len(used)} months agree: a tilted or partly "
+                "shaded Rg sensor rather than a clock error; not called a clock problem")
     if status == "consistent":
         run = _shifted_run(used, threshold)
         if run is not None:

@@ -138,7 +138,7 @@ def ordinary_code_message(name: str, column: str, code: float, values, night=Non
         at_night = float(np.asarray(night, dtype=bool)[is_code].mean())
         if at_night < NIGHT_SHARE:
             return None
-        why = (f"{at_night:.0%} of them with the sun down, where a pyranometer reads about "
+        why = (f"{100 * at_night:.0f} % of them with the sun down, where a pyranometer reads about "
                "0 (a logger that clamps negative readings writes exactly 0)")
     else:
         if others.size == 0:

@@ -1154,7 +1154,8 @@ def values_written_twice(values, name: str, interval_minutes: float, sunlit=None
         return None
     column = (columns or {}).get(name, name)
     return (f"{name} (column {column!r}) repeats its value in the next record in "
-            f"{high:.0%} of the record pairs of one phase and {low:.0%} of the other: values "
+            f"{100 * high:.0f} % of the record pairs of one phase and {100 * low:.0f} % of the "
+            "other: values "
             f"of {2 * interval_minutes:g} minutes written twice into {interval_minutes:g}-"
             "minute records (a coarser file joined by a forward fill), so every other "
             "record holds the previous interval's value; join the coarser values to their "
@@ -1658,8 +1659,8 @@ def dew_point_as_tair(tair, rh, vpd, columns=None) -> str | None:
     return (f"air temperature (column {names.get('tair', 'tair')!r}) looks like the dew "
             f"point: the VPD column ({names.get('vpd', 'vpd')!r}) is a median {misfit:.2f} "
             "times e_s(tair) (1 - RH / 100), while RH / 100 times it matches that to "
-            f"{abs(identity - 1.0):.1%} (the identity e_s(dew point) = vapour pressure, over "
-            f"{int(usable.sum())} records): map the air temperature as tair, or respiration "
+            f"{100 * abs(identity - 1.0):.1f} % (the identity e_s(dew point) = vapour pressure, "
+            f"over {int(usable.sum())} records): map the air temperature as tair, or respiration "
             "and the light response read temperatures several K too low")
 
 
@@ -1928,8 +1929,8 @@ def vapour_pressure_as_vpd(tair, rh, vpd, columns=None) -> str | None:
             return (f"the VPD column ({names.get('vpd', 'vpd')!r}) looks like {label}, not "
                     f"the deficit: at 60-95 % RH it matches {label} (from air temperature "
                     f"{names.get('tair', 'tair')!r} and RH {names.get('rh', 'rh')!r}) to "
-                    f"a median {math.expm1(fit):.1%}, while it is a median "
-                    f"{math.expm1(misfit):.0%} off e_s(tair) (1 - RH / "
+                    f"a median {100 * math.expm1(fit):.1f} %, while it is a median "
+                    f"{100 * math.expm1(misfit):.0f} % off e_s(tair) (1 - RH / "
                     f"100) ({int(usable.sum())} records); map the deficit as vpd, or leave "
                     "vpd unmapped to derive it from rh and tair, or the light response "
                     "reads humid hours as dry ones")
@@ -2569,9 +2570,10 @@ def rg_blank_in_the_dark(rg, potential, columns=None) -> str | None:
     if dark_missing < _DARK_BLANK_SHARE or sunlit_missing >= 1.0 - _SUNLIT_PRESENT_SHARE:
         return None
     column = (columns or {}).get("rg", "rg")
-    return (f"rg (column {column!r}) is missing in {dark_missing:.0%} of the {int(dark.sum())} "
-            f"records with the sun down but in {sunlit_missing:.0%} of those with the sun up: "
-            "a logger or export that writes no value in the dark (or below a threshold) reads "
+    return (f"rg (column {column!r}) is missing in {100 * dark_missing:.0f} % of the "
+            f"{int(dark.sum())} "
+            f"records with the sun down but in {100 * sunlit_missing:.0f} % of those with the sun "
+            "up: a logger or export that writes no value in the dark (or below a threshold) reads "
             "like this; a pyranometer reads 0 there within a few W m-2, so write 0 for the "
             "night in a copy of the file (as it is, every night is a driver gap: the daytime "
             "method's sums come out NaN and the clock check cannot judge)")
@@ -2888,7 +2890,7 @@ def placeholder_value(values, name: str, stamps=None, columns=None) -> str | Non
         where = np.flatnonzero(finite)[int(np.argmax(starts))]
         first = f", the first from {pd.DatetimeIndex(stamps)[where]:%Y-%m-%d %H:%M}"
     return (f"{name} (column {column!r}): the value {code:g} occurs {count} times in {runs} "
-            f"separate runs ({count / present.size:.1%} of the present values{first}), "
+            f"separate runs ({100 * (count / present.size):.1f} % of the present values{first}), "
             f"against {beside} at ±{step:.3g}, the column's resolution, beside it: "
             f"{_PLACEHOLDER_WHAT.get(name, 'a measured value')} does not repeat one value "
             "that often, so it "

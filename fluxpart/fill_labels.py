@@ -6,7 +6,8 @@ uncertainty. A file exported after an earlier processing often holds both the me
 flux and its gap-filled version, and the filled one, complete and tidy, is the one a user
 maps. Its fills then count as measurements: donors of the remaining gaps, points of the
 respiration and light-response fits, with no fill uncertainty. Where the earlier tool
-filled every gap, the run names the gapless column (:func:`fluxpart.column_faults.gapless_nee`);
+filled every gap, the values show it too (:func:`fluxpart.column_faults.gapless_nee`),
+and the run names it once, by its name (:data:`FILLED_LABEL_MARK`);
 where it filled the short gaps only, nothing in the values tells: on the invented
 grassland example, its gaps of up to 3 h filled by a mean of records of similar weather
 within a week (the usual look-up of marginal distribution sampling, Reichstein et al.
@@ -26,7 +27,13 @@ from __future__ import annotations
 
 from .storage_labels import label_words
 
-__all__ = ["FILLED_WORDS", "filled_nee_label"]
+__all__ = ["FILLED_LABEL_MARK", "FILLED_WORDS", "filled_nee_label"]
+
+#: Key of ``frame.attrs`` the reader sets (True) where :func:`filled_nee_label` named the
+#: column: the preflight's gapless-NEE finding on the same column (every gap filled) is
+#: then left out, one finding with one message
+#: (:func:`fluxpart.screening_stage.clock_and_preflight`, round polish47).
+FILLED_LABEL_MARK = "nee_labelled_filled"
 
 #: Words of a column name that say its values are gap-filled (our choice: the English
 #: words and the abbreviation "gf" of "gap-filled").

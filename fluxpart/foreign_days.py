@@ -101,7 +101,7 @@ def foreign_days(values, starts, minimum: float, maximum: float, *, column: str,
     listed = (", ".join(names) if len(names) <= 4
               else f"{len(names)} days from {names[0]} to {names[-1]}")
     return (f"nee: column {column!r} holds values beyond the plausible range "
-            f"[{minimum:g}, {maximum:g}] {unit} in {DAY_SHARE:.0%} or more of the records "
+            f"[{minimum:g}, {maximum:g}] {unit} in {100 * DAY_SHARE:.0f} % or more of the records "
             f"of {int(named.sum())} day(s) ({listed}; {int(beyond[named].sum())} of "
             f"{int(count[named].sum())} values): no CO2 exchange reaches such values and "
             "a flux's spikes are single records, so on those days the column holds another "

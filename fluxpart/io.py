@@ -1023,7 +1023,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
 
     derived: list[str] = []
     source_of = dict(mapping)
-    storage_missing = 0
+    storage_missing, storage_smooths, filled_label = 0, False, False
     if "storage" in converted:
         turbulent, storage = converted["nee"], converted.pop("storage")
         lacking = np.isfinite(turbulent) & ~np.isfinite(storage)
@@ -1075,6 +1075,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             counted_twice = storage_smooths_nee(turbulent, storage,
                                                 np.asarray(potential) <= 0.0, starts,
                                                 interval_minutes, mapping)
+            storage_smooths = counted_twice is not None
         if counted_twice and FLUX_COPY_WORDS in counted_twice:
             # a flux mapped as storage: NEE counted twice cannot be right (mistakes38)
             accepted.append(_refuse_or_warn(
@@ -1102,6 +1103,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         filled = filled_nee_label(mapping["nee"])
         if filled:
             warnings.append(f"nee: {filled}")
+            filled_label = True
     if "ppfd" in converted:
         ppfd = converted.pop("ppfd")
         if "rg" not in converted:
@@ -1133,7 +1135,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         if judged and flag_rejected > 0.5 * judged:
             flag_values = np.unique(np.concatenate([f[np.isfinite(f)] for f in flags]))[:10]
             warnings.append(f"nee_flag: {flag_rejected} of {judged} records "
-                            f"({flag_rejected / judged:.0%}) are rejected by "
+                            f"({100 * (flag_rejected / judged):.0f} %) are rejected by "
                             f"{' + '.join(flag_columns)} with [input] flag_accept = "
                             f"{list(flag_accept)}; the flags hold {[f'{v:g}' for v in flag_values]}: "
                             "check which values mean a good record")
@@ -1180,7 +1182,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     frame.index.name = "time"
     ranges, runs = inserted_runs(inserted, interval_minutes)
     if len(full) and len(inserted) > 0.25 * len(full):
-        warnings.append(f"{len(inserted)} of {len(full)} stamps ({len(inserted) / len(full):.0%}) "
+        warnings.append(f"{len(inserted)} of {len(full)} stamps "
+                        f"({100 * (len(inserted) / len(full)):.0f} %) "
                         "are absent from the file and were inserted as missing; check "
                         "interval_minutes and whether the file changes its interval")
     for name in mapping:
@@ -1245,6 +1248,16 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     if written_limit is not None:
         # the preflight's cut rule leaves this end of NEE to the reader's message
         frame.attrs["nee_written_limit"] = written_limit
+    # findings of the preflight that a message here names already (screening_stage
+    # leaves them out; a mark, not the message's wording: review47)
+    if storage_smooths:
+        from .storage_size import STORAGE_SMOOTHS_MARK
+
+        frame.attrs[STORAGE_SMOOTHS_MARK] = True
+    if filled_label:
+        from .fill_labels import FILLED_LABEL_MARK
+
+        frame.attrs[FILLED_LABEL_MARK] = True
     if accept_units:
         # read_config -> process: process checks a caller's frame's units again, but not
         # those the site config accepted as they are
@@ -4264,7 +4277,8 @@ def _flag_scale_message(flags: list, flag_columns: list, flag_accept, rejected: 
     order = np.argsort(-counts, kind="stable")[:6]
     shown = ", ".join(f"{values[i]:g} in {counts[i]}" for i in order)
     return (f"nee_flag: {rejected} of {judged} records with an NEE value "
-            f"({rejected / judged:.1%}) are rejected by {' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)} "
+            f"({100 * (rejected / judged):.1f} %) are rejected by {' + '.join(flag_columns)} with "
+            f"[input] flag_accept = {list(flag_accept)} "
             f"(the flags hold {shown} records): either flag_accept names the values of bad "
             "records (a flag of the other scale, a higher value for a better record), or the "
             "site's own checks reject nearly every record, which leaves no budget (towers "

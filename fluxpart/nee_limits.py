@@ -246,7 +246,7 @@ def _edges(values: np.ndarray, written=None) -> list:
         found.append(
             f"{'above' if upper else 'below'} {level:.4g} ({inside} values within "
             f"{band:.3g} µmol m-2 s-1 {'below' if upper else 'above'} it, {beyond} within "
-            f"{width:.3g} {'above' if upper else 'below'}; {share:.2%} of the values lie "
+            f"{width:.3g} {'above' if upper else 'below'}; {100 * share:.2f} % of the values lie "
             "beyond it)")
     return found
 

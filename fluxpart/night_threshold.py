@@ -69,7 +69,7 @@ def twilight_as_night(rg, potential, threshold: float) -> list:
     night = int(((rg < threshold) & np.isfinite(rg)).sum())
     return [f"night_rg_threshold = {threshold:g} W m-2 counts {int(twilight.sum())} records with "
             f"the sun up and Rg from {limit:.3g} to {threshold:g} W m-2 as night "
-            f"({twilight.sum() / max(night, 1):.1%} of the night records; Rg at night "
+            f"({100 * (twilight.sum() / max(night, 1)):.1f} % of the night records; Rg at night "
             f"{offset:.2g} W m-2): their PPFD, about 2.1 x Rg, exceeds the light compensation "
             "point of leaves, so their CO2 uptake enters the nighttime respiration fits and "
             "lowers nighttime Reco and GPP (tens of g C m-2 a year; 20 W m-2 is about 40-46 "

@@ -144,7 +144,7 @@ def uptake_note(months: pd.DataFrame, column: str = "nee") -> str | None:
     return (
         f"{column!r}: the measured NEE of the dark records (sun more than "
         f"{-DARK_SUN_ELEVATION:g} degrees below the horizon) is below 0 in most records of "
-        f"{len(failing)} of {len(tested)} months ({shown}; {share:.0%} of their records "
+        f"{len(failing)} of {len(tested)} months ({shown}; {100 * share:.0f} % of their records "
         f"negative, median of the months' medians {median:.2f} µmol m-2 s-1). Respiration "
         "is never negative, so CO2 is taken up in the dark: plants with crassulacean acid "
         "metabolism (agave, pineapple, opuntia) fix it at night, or an open-path analyser "

@@ -1000,7 +1000,8 @@ def _dark_rg(frame: pd.DataFrame, potential, config) -> list:
         return []
     return [Finding("night mask", (
         f"Rg is at or above night_rg_threshold = {config.night_rg_threshold:g} W m-2 in "
-        f"{above.mean():.0%} of the {int(dark.sum())} records with the sun below the horizon "
+        f"{100 * (above.mean()):.0f} % of the {int(dark.sum())} records with the sun below the "
+        "horizon "
         f"(median {float(np.median(rg[dark])):.3g} W m-2), so few records count as night: a "
         "pyranometer offset, a mislabelled Rg column or a wrong [site] position; correct the "
         "offset in a copy of the file, or raise [processing] night_rg_threshold above it"),
@@ -1096,7 +1097,8 @@ def _missing_ustar(index: pd.DatetimeIndex, night_measured: np.ndarray,
     stamps = index[without]
     return [Finding("u* filter", (
         f"u* is missing at {int(without.sum())} of the {measured} night records with measured "
-        f"NEE ({without.sum() / measured:.0%}; {stamps[0]:%Y-%m-%d} .. {stamps[-1]:%Y-%m-%d}): "
+        f"NEE ({100 * (without.sum() / measured):.0f} %; {stamps[0]:%Y-%m-%d} .. "
+        f"{stamps[-1]:%Y-%m-%d}): "
         "without u* a night's turbulence cannot be shown, so these nights are rejected and "
         "filled from other nights; check the u* column's mapping and missing codes"), False)]
 
@@ -1444,8 +1446,8 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         hours = pd.Series(index[rg_high].hour).value_counts().sort_index()
         busiest = ", ".join(f"{h:02d}h" for h in hours.nlargest(3).index.sort_values())
         findings.append(Finding("screening (Rg above potential radiation)", (
-            f"{int(rg_high.sum())} Rg records ({rg_high.sum() / daylight:.1%} of the sunlit "
-            f"ones) exceed the potential radiation, mostly at {busiest}: sunlight where the "
+            f"{int(rg_high.sum())} Rg records ({100 * (rg_high.sum() / daylight):.1f} % of the "
+            f"sunlit ones) exceed the potential radiation, mostly at {busiest}: sunlight where the "
             "site's settings put none is clock or site-geometry evidence (see the clock "
             "check); these records are rejected and refilled"), False))
     dark = _dark_rg(frame, potential, config)

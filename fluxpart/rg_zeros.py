@@ -118,7 +118,7 @@ def rg_zero_in_daylight(rg, potential, stamps=None, columns=None) -> str | None:
     return (f"rg (column {column!r}) reads 0 W m-2 or less in {count} records with the sun "
             f"well up (potential radiation {DAYLIGHT_POTENTIAL:g} W m-2 or more, also a "
             f"record before and after; "
-            f"{count / max(present, 1):.1%} of those present{where}): even the thickest "
+            f"{100 * (count / max(present, 1)):.1f} % of those present{where}): even the thickest "
             "overcast passes tens of W m-2 of diffuse light there (Kasten & Czeplak 1980), "
             "so 0 looks like the logger's code for a lost value (or a sensor covered by "
             "snow or a cap). Those records count as night, and the uptake measured in them "

@@ -16,8 +16,16 @@ import pandas as pd
 
 from . import clock, preflight, screening, solar, unit_checks
 from .errors import ConfigError, ImplausibleValueError, InsufficientDataError
-from .storage_size import SMOOTHS_WORDS
+from .fill_labels import FILLED_LABEL_MARK
+from .storage_size import STORAGE_SMOOTHS_MARK
 from .variables import VARIABLES
+
+#: Marks the reader sets on the frame (``frame.attrs``) where its own message names a
+#: cause, and the preflight finding on the same column each leaves out (one finding, one
+#: message): a storage column whose changes smooth NEE (round mistakes41), a column
+#: labelled gap-filled whose every gap is filled (round polish47).
+READER_NAMED_FINDINGS = {STORAGE_SMOOTHS_MARK: "input (nee smoothed)",
+                         FILLED_LABEL_MARK: "input (nee gapless)"}
 
 
 def night_rg(rg) -> np.ndarray:
@@ -144,9 +152,9 @@ def clock_and_preflight(frame, site, config, interval, geometry, is_night, scree
         frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),
         screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval,
         reader.get("columns"), sun_elevation=geometry["sun_elevation"].to_numpy())
-    if any(SMOOTHS_WORDS in text for text in reader.get("warnings", ())):
-        # the reader found the storage column behind the smoothness (round mistakes41)
-        findings = [f for f in findings if f.stage != "input (nee smoothed)"]
+    # a finding the reader's message names already (its mark on the frame)
+    named = {stage for mark, stage in READER_NAMED_FINDINGS.items() if frame.attrs.get(mark)}
+    findings = [f for f in findings if f.stage not in named]
     findings = preflight.defer_to_clock(findings, None if verdict is None else verdict.status)
     if verdict is not None:
         findings = preflight.shade_at_clock_shift(
@@ -200,7 +208,7 @@ def flag_cause(frame) -> str | None:
         return None
     return (f"the site flag (nee_flag) rejects {int(rejected.sum())} of the "
             f"{int(present.sum())} records with an NEE value "
-            f"({rejected.sum() / present.sum():.1%}), likely why these stages lack "
+            f"({100 * (rejected.sum() / present.sum()):.1f} %), likely why these stages lack "
             "measured NEE: check [input] flag_accept, the flag values that mean a good "
             "record (a flag of the opposite meaning?)")
 

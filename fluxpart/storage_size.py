@@ -19,15 +19,19 @@ import numpy as np
 import pandas as pd
 
 __all__ = ["AIR_MOLES_PER_M3", "LEVEL_WORDS", "MAX_COLUMN_RISE", "SHORT_COLUMN_M",
-           "SMOOTHS_WORDS", "daily_store_swing",
+           "SMOOTHS_WORDS", "STORAGE_SMOOTHS_MARK", "daily_store_swing",
            "oversized_storage", "storage_smooths_nee"]
 
 #: Words of :func:`fluxpart.column_faults.storage_in_turbulent_flux`'s message on a
 #: storage column that is a level (a running sum swings too, and that message names it).
 LEVEL_WORDS = "looks like a level, not a change"
-#: Words of :func:`storage_smooths_nee`'s message: the preflight's smoothed-NEE finding,
-#: which the storage explains, is left out where the reader's warnings hold them.
+#: Words of :func:`storage_smooths_nee`'s message.
 SMOOTHS_WORDS = "outweighs the flux's random error"
+#: Key of ``frame.attrs`` the reader sets (True) where :func:`storage_smooths_nee` named
+#: the storage column: the preflight's smoothed-NEE finding, which the storage explains,
+#: is then left out (:func:`fluxpart.screening_stage.clock_and_preflight`). A mark, not
+#: the message's wording, which may change (round review47 found the wording matched).
+STORAGE_SMOOTHS_MARK = "storage_smooths_nee"
 #: Moles of air per cubic metre at 15 °C and 1013.25 hPa, p / (R T) =
 #: 101325 / (8.314 * 288.15) [mol m-3] (ideal gas law).
 AIR_MOLES_PER_M3 = 101325.0 / (8.314 * 288.15)

@@ -599,8 +599,7 @@ def _numeric_clock(text: pd.Series) -> str:
                          f"{then.round('min'):%Y-%m-%d %H:%M})")
         return (f"the stamps are {name}, not dates ({text.iloc[0].strip()!r} is "
                 f"{first.round('min'):%Y-%m-%d %H:%M}{zone}){other}, which fluxpart does not "
-                "read: "
-                "write the column as dates and times in a copy of the file (e.g. 2021-06-01 "
+                "read: write the column as dates and times in a copy of the file (e.g. 2021-06-01 "
                 "13:30; in a spreadsheet, format the column as yyyy-mm-dd hh:mm before saving "
                 "as CSV) and set [input] time_format to match"
                 + (", with [input] time_zone = \"UTC\" if you keep UTC" if zone else ""))
@@ -1370,8 +1369,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     # a blank line among them: CR CR LF line ends (a CR LF file converted
                     # again) put one under every line (layouts36)
                     f"{'' if skip == 1 else '(units, processing or blank lines) '}under the "
-                    "header, set "
-                    f"[input] rows_after_header = {skip}")
+                    f"header, set [input] rows_after_header = {skip}")
         elif _NULL_STAMP.fullmatch(text.iloc[first]) and not failed.all():
             # a database's or a statistics program's word for no value in the time column
             hint = ("; a record without a date and time (an empty stamp or a missing "
@@ -1951,7 +1949,8 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
             if seconds:
                 raise SpacingError(seconds)
             raise SpacingError(f"the most common spacing between stamps is {typical:g} minutes "
-                               f"({share:.0%} of steps{_spacing_where(steps, typical, describe)}); "
+                               f"({100 * share:.0f} % of "
+                               f"steps{_spacing_where(steps, typical, describe)}); "
                                "fluxpart needs 30- or 60-minute records: average "
                                f"{_spacing_what(steps, typical)} to 30 or 60 minutes first")
         declared = int(typical)

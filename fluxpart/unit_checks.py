@@ -236,8 +236,8 @@ def implausible_message(name: str, canonical: np.ndarray, file_values: np.ndarra
         return None
     declared = unit if unit is not None else variable.unit
     message = (f"column {column!r} ({name}, read as {declared!r}): {int(outside.sum())} of "
-               f"{present.size} present values ({share:.1%}) lie outside the plausible range "
-               f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; median "
+               f"{present.size} present values ({100 * share:.1f} %) lie outside the plausible "
+               f"range [{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; median "
                f"{median:.4g} {variable.unit}")
     raw_present = file_values[np.isfinite(file_values)]
     outside_raw = raw_present[_outside(name, to_canonical(raw_present, name, unit,
@@ -526,7 +526,7 @@ def _zero_code_message(converted: dict, columns: dict, interval_minutes: int, mi
     expected = beside / 2.0
     if zeros <= _ZERO_SPIKE_RATIO * max(expected, 1.0):
         return None, None
-    found = (f"{zeros} of {present.size} present values ({zeros / present.size:.1%}) are "
+    found = (f"{zeros} of {present.size} present values ({100 * (zeros / present.size):.1f} %) are "
              f"exactly 0, against {beside} at ±{step:.3g}, the file's resolution, beside it; "
              "a flux is not exactly 0 that often")
     if _enough_days(present.size, interval_minutes):
@@ -592,7 +592,7 @@ def _nonzero_code_message(converted: dict, units: dict, columns: dict,
     shown = (f"{code:g}" if "nee" not in units
              else f"read as {code:g} µmol m-2 s-1 (the file's value under its unit)")
     found = (f"the value {shown} occurs {count} times in {runs} separate runs of records "
-             f"({count / present.size:.1%} of the present values), against {beside} at "
+             f"({100 * (count / present.size):.1f} % of the present values), against {beside} at "
              f"±{step:.3g}, the file's resolution, beside it; a flux does not repeat one "
              "value that often")
     side = "below" if code <= float(np.min(present)) else "above"
@@ -862,8 +862,8 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
                                   / declared_scale, 99) >= 0.1]
         fix = (f"the values look like {fits[0]!r}: set [input.units] vpd = \"{fits[0]}\""
                if fits else "check the column mapping and [input.units] vpd")
-        return (f"column {columns['vpd']!r} (vpd, read as {shown!r}): {above.mean():.0%} of "
-                "records exceed the saturation vapour pressure at tair (median "
+        return (f"column {columns['vpd']!r} (vpd, read as {shown!r}): {100 * above.mean():.0f} % "
+                "of records exceed the saturation vapour pressure at tair (median "
                 f"{np.median(ratio):.3g} times it), which no air can; {fix} (or list vpd in "
                 "[input] accept_units)"), None
     # values too small: a larger unit read as the declared one (kPa read as hPa, or kPa
@@ -1034,8 +1034,9 @@ def _declared_fahrenheit(name: str, converted: dict, columns: dict, interval_min
             written = np.mean(vpd[both] > 1.1 * saturation_vapour_pressure(as_celsius[both])
                               + 1.0)
             if read > IMPLAUSIBLE_SHARE and written <= IMPLAUSIBLE_SHARE:
-                evidence = (f"VPD exceeds the saturation vapour pressure at it in {read:.0%} "
-                            f"of records, which no air can, and in {written:.0%} with the "
+                evidence = ("VPD exceeds the saturation vapour pressure at it in "
+                            f"{100 * read:.0f} % of records, which no air can, and in "
+                            f"{100 * written:.0f} % with the "
                             "values read as °C")
     if evidence is None:
         return None
@@ -1385,7 +1386,8 @@ def _flag_rejects_most(frame, share: float) -> str | None:
     held = ", ".join(f"{value:g}" for value in np.unique(values[judged])[:10])
     records = "records with an NEE value" if with_nee else "records"
     return (f"column 'nee_flag': {int(rejected.sum())} of {int(judged.sum())} {records} "
-            f"({rejected.sum() / judged.sum():.1%}) are rejected, as process() keeps a record "
+            f"({100 * (rejected.sum() / judged.sum()):.1f} %) are rejected, as process() keeps a "
+            "record "
             f"only where nee_flag is 0 (or missing); the flags hold {held}: where 1 (or True) "
             "means a good record, pass (frame[\"nee_flag\"] == 0) instead")
 
@@ -1492,7 +1494,7 @@ def frame_code_messages(converted: dict) -> list:
         if count < _FRAME_CODE_MIN_COUNT:
             continue
         lines.append(f"column {name!r}: the value {code:g} occurs {count} times "
-                     f"({count / present.size:.1%} of its values), outside the plausible "
+                     f"({100 * (count / present.size):.1f} % of its values), outside the plausible "
                      f"range [{variable.minimum:g}, {variable.maximum:g}] {variable.unit}: a "
                      "logger's missing-data code, read as missing; replace it with NaN in "
                      f"the frame (frame.replace({code:g}, numpy.nan)) so that no value of "

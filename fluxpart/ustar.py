@@ -1244,7 +1244,7 @@ def _change_point_core(nee, ustar, tair, group, groups, options, *, statistics, 
     for row in np.flatnonzero(~season_ok):
         reason[row] = (f"{used_count[row]} of {tested_count[row]} strata with a significant "
                        f"change point (alpha = {options['alpha']:g}; at least "
-                       f"{share:.0%} needed)")
+                       f"{100 * share:.0f} % needed)")
     needed = n_bins * options["min_records_per_bin"]
     for row in np.flatnonzero(tested_count == 0):
         reason[row] = f"too few night records: no stratum with {needed} or more"
@@ -1451,7 +1451,8 @@ def _annual_columns(years, season_names, core, detector, floor) -> dict:
             reason[y] = "no season of the year gave a threshold"
         elif np.isnan(detected[y]):
             reason[y] = (f"{int(accepted[y])} of {int(tested[y])} strata with a significant "
-                         f"change point (at least {core['min_significant_share']:.0%} needed)")
+                         f"change point (at least {100 * core['min_significant_share']:.0f} % "
+                         "needed)")
         elif detector == "moving_point" and seasons_used[y] < 4:
             found = set(season_names[(year_of_group == y) & has])
             absent = [season for season in SEASONS if season not in found]

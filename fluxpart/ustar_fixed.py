@@ -200,7 +200,8 @@ def _far_above_note(fixed: float, annual: pd.DataFrame, index, nee, ustar_values
         if detected and kept < KEPT_NIGHT_SHARE * detected:
             named.append(f"{int(row.year)}: detected {row.threshold:.3f} (5-95 %: "
                          f"{row.threshold_p05:.3f}-{row.threshold_p95:.3f}), {kept} of the "
-                         f"{detected} measured night records it keeps ({kept / detected:.1%})")
+                         f"{detected} measured night records it keeps "
+                         f"({100 * (kept / detected):.1f} %)")
     if not named:
         return None
     return (f"u* threshold: ustar_method = \"fixed\" filters at ustar_threshold = {fixed:g} "

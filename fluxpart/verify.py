@@ -84,11 +84,13 @@ from .fingerprint import code_fingerprint, platform_differences, platform_record
 from .io import broken_link
 from .manifest import (
     CAUTION,
+    RUN_LOG,
     escaped_paths,
     library_versions,
     newer_format_reason,
     read_manifest,
     recorded_path,
+    shown_name,
     without_paths,
 )
 from .resultdir import interrupted_writes
@@ -252,6 +254,10 @@ class VerifyReport:
         Which result the folder holds, from its manifest: seed, input and site config
         (name and SHA-256 prefix) and the release that wrote it (after an interrupted
         run the folder holds the earlier or the new result; this says which).
+    replaced_manifest : str
+        Where every table differs from the SHA-256 its manifest records: the evidence
+        that the manifest and the tables come from different runs
+        (:func:`replaced_manifest`); empty otherwise.
     """
 
     directory: Path
@@ -264,6 +270,7 @@ class VerifyReport:
     exact: bool = False
     notes: tuple = field(default=())
     identity: str = ""
+    replaced_manifest: str = ""
 
     @property
     def identical(self) -> bool:
@@ -296,10 +303,12 @@ class VerifyReport:
         """One phrase per file that makes the folder differ from its manifest: changed,
         missing, damaged, not listed (a stale table, an added note) or the manifest
         edited (named even in the one-line verdict of ``--quiet``)."""
-        phrases = []
+        phrases = [f"manifest.json likely another run's: {self.replaced_manifest}"
+                   ] if self.replaced_manifest else []
         for d in self.differences:
             if d.kind == "hash" and d.column:
-                phrases.append(f"{d.column} changed after it was written")
+                if not self.replaced_manifest:
+                    phrases.append(f"{d.column} changed after it was written")
             elif d.kind in ("extra", "seal", "format") and d.column:
                 phrases.append(f"{d.column} {d.stored}")
             elif d.kind == "file" and d.stored and d.table != "input":
@@ -349,7 +358,11 @@ class VerifyReport:
             # a file changed after it was written is no effect of code: naming the code
             # alone as the likely cause beside it read as an all-clear (review43)
             edited = sorted({d.table for d in failures if d.kind in ("hash", "seal")})
-            if self.code_changed and any(d.kind in ("value", "rows", "columns", "table",
+            if self.replaced_manifest:
+                lines.append("likely cause: manifest.json of another run copied into the "
+                             "folder (or its tables and run log replaced by another run's): "
+                             f"{self.replaced_manifest}")
+            elif self.code_changed and any(d.kind in ("value", "rows", "columns", "table",
                                                     "rounding", "manifest")
                                          for d in failures + list(self.rounding)):
                 lines.append("likely cause: " + (
@@ -616,6 +629,80 @@ def _float_relative(a, b) -> float:
         return float("nan")
     reference = max(abs(a), abs(b))
     return abs(a - b) / reference if reference > 0 else float("nan")
+
+
+def _read_run_log(directory: Path) -> dict | None:
+    """The folder's run log (never hashed), or None where it is absent or unreadable."""
+    try:
+        record = json.loads((directory / RUN_LOG).read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        return None
+    return record if isinstance(record, dict) else None
+
+
+def replaced_manifest(differences, manifest: dict, recomputed: dict | None = None,
+                      run_log: dict | None = None) -> str:
+    """The evidence that a folder's manifest and its tables come from different runs.
+
+    A table edited or replaced after the run changes its own SHA-256 only. Another run's
+    ``manifest.json`` copied into the folder changes the SHA-256 recorded for every table
+    that run computed otherwise: all of them where its input or seed differs in the
+    data, the annual table alone where only the Monte Carlo draws differ (round faults35
+    found the latter named as "annual.parquet changed after it was written"). Two facts
+    tell the manifest apart: every table differing (one replaced file against every
+    table edited), and the run log, written with the tables and never hashed, naming
+    another site config or input file than the manifest records (by file name; a result
+    moved since keeps its names). Where the recomputation reproduces, bit for bit, the
+    SHA-256 the manifest records for each table, the manifest is the genuine record of
+    its own input and settings, and the tables are another result's.
+
+    Parameters
+    ----------
+    differences : sequence of Difference
+        The folder's differences from its manifest (``kind == "hash"`` per table).
+    manifest : dict
+        The folder's manifest.
+    recomputed : dict, optional
+        The manifest of the recomputation, where there is one.
+    run_log : dict, optional
+        The folder's run log (``run-log.json``), where it is there and readable.
+
+    Returns
+    -------
+    str
+        The evidence, where a table differs from its recorded SHA-256 and either every
+        one of two or more tables does or the run log names another file; empty
+        otherwise.
+    """
+    tables = {name: entry for name, entry in (manifest.get("tables") or {}).items()
+              if isinstance(entry, dict)}
+    changed = {d.table for d in differences if d.kind == "hash"}
+    if not changed:
+        return ""
+    evidence = []
+    if len(tables) >= 2 and changed == set(tables):
+        evidence.append(f"every one of its {len(tables)} tables differs from the SHA-256 "
+                        "it records")
+    logged = (run_log or {}).get("absolute_paths")
+    provenance = manifest.get("provenance") or {}
+    for key, what in (("site_config", "site config"), ("input", "input file")):
+        entry = provenance.get(key)
+        written = logged.get(key) if isinstance(logged, dict) else None
+        recorded = entry.get("path") if isinstance(entry, dict) else None
+        if isinstance(written, str) and isinstance(recorded, str) and \
+                shown_name(Path(recorded).name) != Path(written).name:
+            evidence.append(f"the run log written with the tables names the {what} "
+                            f"{Path(written).name!r}, the manifest {Path(recorded).name!r}")
+    if not evidence:
+        return ""
+    text = "; ".join(evidence)
+    again = (recomputed or {}).get("tables") or {}
+    if tables and all(isinstance(again.get(name), dict) and again[name].get("sha256")
+                      == entry.get("sha256") for name, entry in tables.items()):
+        text += ("; and its recorded input and settings reproduce exactly the SHA-256 it "
+                 "records, so the manifest is its own run's record and the tables are "
+                 "another result's")
+    return text
 
 
 def _compare_manifests(stored: dict, recomputed: dict) -> list:
@@ -1492,6 +1579,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     directory = Path(directory).absolute()
     recover_missing(directory)            # a write interrupted between its two renames
     manifest, differences, folder_notes, stored_tables = _read_stored(directory)
+    run_log = _read_run_log(directory) if differences else None
     environment, code_changed = _environment(manifest)
     identity = result_identity(manifest)
     provenance = manifest["provenance"]
@@ -1504,7 +1592,9 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(differences), environment=tuple(environment),
                                 code_changed=code_changed, exact=exact,
-                                notes=tuple(folder_notes))
+                                notes=tuple(folder_notes),
+                                replaced_manifest=replaced_manifest(differences, manifest,
+                                                                    run_log=run_log))
         raise InputFileError("verify: the folder matches its manifest (seal and every table's "
                              "SHA-256), but the manifest records neither an input file and site "
                              "config (fluxpart run) nor a demo seed (fluxpart demo), so the "
@@ -1556,7 +1646,9 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(differences),
                                 environment=tuple(environment), code_changed=code_changed,
-                                exact=exact, notes=(*notes, f"not recomputed: {error}"))
+                                exact=exact, notes=(*notes, f"not recomputed: {error}"),
+                                replaced_manifest=replaced_manifest(differences, manifest,
+                                                                    run_log=run_log))
         if result is None:
             return VerifyReport(directory=directory, identity=identity, source=source,
                                 tables=tuple(sorted(stored_tables)),
@@ -1636,7 +1728,9 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     return VerifyReport(directory=directory, identity=identity, source=source, tables=tuple(names),
                         differences=tuple(differences), rounding=tuple(rounding),
                         environment=tuple(environment), code_changed=code_changed,
-                        exact=exact, notes=tuple(notes))
+                        exact=exact, notes=tuple(notes),
+                        replaced_manifest=replaced_manifest(differences, manifest,
+                                                            new_manifest, run_log))
 
 
 def command_verify(args) -> int:

@@ -23,8 +23,8 @@ def test_differences_and_flags():
     messages = disagreements(table, 0.15)
     assert len(messages) == 1 and messages[0].startswith("2021") and "+300" in messages[0]
     # the fluxes named as everywhere else (the message said "RECO"; review46)
-    assert "GPP daytime - nighttime = +300 g C m-2 (+26%)" in messages[0]
-    assert "Reco daytime - nighttime = +0 g C m-2 (+0%)" in messages[0]
+    assert "GPP daytime - nighttime = +300 g C m-2 (+26 %)" in messages[0]
+    assert "Reco daytime - nighttime = +0 g C m-2 (+0 %)" in messages[0]
     assert "RECO" not in messages[0]
 
 

@@ -240,7 +240,7 @@ def test_rg_left_blank_in_the_dark_is_named():
     nee, rg, potential = light_record()
     blank = np.where(rg < 5.0, np.nan, rg)
     text = rg_blank_in_the_dark(blank, potential, columns={"rg": "sw_down"})
-    assert text is not None and "'sw_down'" in text and "missing in 100% of the" in text
+    assert text is not None and "'sw_down'" in text and "missing in 100 % of the" in text
     index = pd.date_range("2021-03-01", periods=nee.size, freq=f"{STEP}min")
     frame = pd.DataFrame({"rg": blank}, index=index)
     assert [f.stage for f in _column_faults(frame, potential, STEP)] == ["input (rg dark)"]

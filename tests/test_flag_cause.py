@@ -42,7 +42,7 @@ def test_the_flag_is_named_only_where_it_rejects_most_records_with_nee():
     inverted = frame.assign(nee_flag=np.where(np.arange(1000) < 10, 0.0, 2.0))
     text = flag_cause(inverted)
     assert text is not None and "rejects 990 of the 1000 records" in text
-    assert "(99.0%)" in text and "flag_accept" in text
+    assert "(99.0 %)" in text and "flag_accept" in text
 
 
 def test_the_example_with_its_flag_inverted_is_refused_naming_the_flag(tmp_path):
@@ -63,7 +63,7 @@ def test_the_example_with_its_flag_inverted_is_refused_naming_the_flag(tmp_path)
             process_site_config(tmp_path / "quillmoor_grassland.toml")
     message = str(caught.value)
     assert message.startswith("nee_flag: ")
-    assert "of 11168 records with an NEE value (99.8%) are rejected by qc_co2" in message
+    assert "of 11168 records with an NEE value (99.8 %) are rejected by qc_co2" in message
     assert "set [input] flag_accept" in message
 
 

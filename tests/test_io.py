@@ -826,7 +826,7 @@ def test_substantial_share_outside_is_fatal(tmp_path):
     records = _records(periods=100)
     records.iloc[:8, 4] = 7.5  # ustar 7.5 m s-1 in 8 % of records
     with pytest.raises(ImplausibleValueError, match=r"'u_fric' \(ustar.*8 of 100 present "
-                                                    r"values \(8.0%\)"):
+                                                    r"values \(8.0 %\)"):
         _read(_write(tmp_path / "t.csv", records))
 
 
@@ -1885,7 +1885,7 @@ def test_flag_rejecting_most_records_warns(tmp_path):
     records["qc"] = np.arange(96) % 3
     _, report = _read(_write(tmp_path / "t.csv", records), columns=MAPPING | {"nee_flag": "qc"},
                       flag_accept=[2])
-    assert any(w.startswith("nee_flag: 64 of 96 records (67%)") and "flag_accept = [2]" in w
+    assert any(w.startswith("nee_flag: 64 of 96 records (67 %)") and "flag_accept = [2]" in w
                for w in report.warnings)
 
 

@@ -27,7 +27,12 @@ from fluxpart.errors import InputFileError
 from fluxpart.manifest import manifest_seal
 from fluxpart.pipeline import process, process_site_config
 from fluxpart.store import file_sha256, read_table
-from fluxpart.verify import ROUNDING_TOLERANCE, compare_tables, remove_dead_scratch, verify
+from fluxpart.verify import (
+    ROUNDING_TOLERANCE,
+    compare_tables,
+    remove_dead_scratch,
+    verify,
+)
 
 
 def _edit_manifest(folder, change, reseal=False):
@@ -179,6 +184,26 @@ def test_resealed_manifest_edit_is_still_caught_by_the_rerun(copy):
     report = verify(copy / "out")
     assert report.exit_code == 1
     assert [d.column for d in report.differences] == ["site.name"]
+
+
+def test_another_runs_manifest_copied_in_is_named_as_the_replaced_file(copy, capsys):
+    """Another run's manifest.json (the same bundle and input, seed 7, other.toml)
+    copied over a result: only annual.parquet's SHA-256 differs (the seed moves the Monte
+    Carlo draws alone), and it was named "changed after it was written" (faults35). The
+    run log written with the tables names site.toml, the manifest other.toml, and the
+    manifest's own input and settings reproduce its recorded SHA-256: the manifest is
+    named as the likely replaced file. (A table edited after the run, its run log
+    agreeing with its manifest, is still named alone: the code-change test below.)"""
+    other = copy / "other.toml"
+    other.write_text((copy / "site.toml").read_text().replace("seed = 0", "seed = 7"))
+    process_site_config(other).write(copy / "other_out")
+    shutil.copy(copy / "other_out" / "manifest.json", copy / "out" / "manifest.json")
+    assert main(["verify", str(copy / "out"), "--quiet"]) == 1
+    out = capsys.readouterr().out
+    assert ("manifest.json likely another run's: the run log written with the tables names "
+            "the site config 'site.toml', the manifest 'other.toml'; and its recorded input "
+            "and settings reproduce exactly") in out
+    assert "changed after it was written" not in out
 
 
 @pytest.mark.parametrize("key", ["versions", "code", "platform"])

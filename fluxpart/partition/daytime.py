@@ -911,7 +911,7 @@ def _window_e0(days, centres, centre_years, usable_night, nee, arrhenius, temper
             "daytime partitioning: the night data give no acceptable E0 (the windows' "
             f"estimates from at least {min_points} night records spanning {min_range} K "
             f"within {max(widths)} days, pooled over the year, must lie inside "
-            f"{list(bounds)} K with a standard error of at most {max_relative_error:.0%}); "
+            f"{list(bounds)} K with a standard error of at most {100 * max_relative_error:.0f} %); "
             "set [processing] e0_fallback to use a fixed E0, flagged")
     return out
 
