@@ -50,7 +50,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from . import flux_rate_labels
+from . import flux_rate_labels, interleaved_lines
 from ._validate import (
     markup_message,
     odd_entry,
@@ -171,7 +171,7 @@ _WHITESPACE = "whitespace"
 #: What opens a comment line: "#" (shell, Python, R), "//" and "/*" (C, C++, Java), "%"
 #: (MATLAB, Octave), "!" (Fortran 90), ";" (INI files, assembler) (each language's
 #: reference (m)); no record of a delimited table starts with one of them
-_COMMENT_MARKS = ("#", "//", "/*", "%", "!", ";")
+_COMMENT_MARKS = interleaved_lines.COMMENT_MARKS
 _GLOB_CHARACTERS = set("*?[")
 #: A number written with digit grouping (thousands separators) for each decimal mark:
 #: "1.034,5" or "1.034" where the decimal mark is a comma, "1,034.5" or "1,034" where it
@@ -2998,6 +2998,40 @@ def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "
             f"{' '.join(error.split())}")
 
 
+def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_header: int,
+                            rows_after_header: int, warnings: list) -> str:
+    """`text` with the header blocks written again after a logger restart and the note
+    lines among the records emptied (line numbers kept), each named in `warnings`
+    (:mod:`fluxpart.interleaved_lines`; layouts37: refused before)."""
+    lines = text.splitlines()
+    blocks = interleaved_lines.repeated_header_blocks(lines, rows_before_header,
+                                                      rows_after_header, delimiter)
+    skipped = {index for first, last in blocks for index in range(first, last + 1)}
+    if blocks:
+        what = ("header line" if not rows_before_header + rows_after_header
+                else "header line with its title and units lines")
+        warnings.append(
+            f"input file {str(path)!r}: {_lines_word(skipped)} "
+            f"{interleaved_lines.ranges(sorted(skipped))} repeat the {what} "
+            f"({len(blocks)} time(s), the same characters: a logger program restarted?): "
+            "skipped")
+    kept = [("" if index in skipped else line) for index, line in enumerate(lines)]
+    notes, mark = interleaved_lines.note_lines(kept, rows_before_header + rows_after_header
+                                               + 1, delimiter)
+    if notes:
+        warnings.append(
+            f"input file {str(path)!r}: {len(notes)} note line(s) among the records start "
+            f"with {mark!r}, as no record does ({_lines_word(notes)} "
+            f"{interleaved_lines.ranges(notes)}: "
+            f"{_shown_line(lines[notes[0]])!r}, ...): skipped")
+        skipped.update(notes)
+    return _emptied_lines(text, skipped)
+
+
+def _lines_word(indices) -> str:
+    return "line" if len(indices) == 1 else "lines"
+
+
 def _emptied_lines(text: str, numbers: set) -> str:
     """`text` with the lines of the given 0-based `numbers` emptied, line ends kept."""
     if not numbers:
@@ -3503,6 +3537,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         text = delimited(path, text, column_widths, rows_before_header)
     rows_before_header += _separator_line(text, delimiter, rows_before_header, path)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
+    text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
+                                   rows_after_header, warnings)
     try:
         raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter,
                                                          rows_before_header,
