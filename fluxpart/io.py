@@ -3011,10 +3011,9 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
         what = ("header line" if not rows_before_header + rows_after_header
                 else "header line with its title and units lines")
         warnings.append(
-            f"input file {str(path)!r}: {_lines_word(skipped)} "
-            f"{interleaved_lines.ranges(sorted(skipped))} repeat the {what} "
-            f"({len(blocks)} time(s), the same characters: a logger program restarted?): "
-            "skipped")
+            f"input file {str(path)!r}: the {what} written again {len(blocks)} time(s) "
+            "among the records, the same characters (a logger program restarted?), on "
+            f"{_lines_word(skipped)} {interleaved_lines.ranges(sorted(skipped))}: skipped")
     kept = [("" if index in skipped else line) for index, line in enumerate(lines)]
     notes, mark = interleaved_lines.note_lines(kept, rows_before_header + rows_after_header
                                                + 1, delimiter)
