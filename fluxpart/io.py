@@ -50,7 +50,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from . import flux_rate_labels, interleaved_lines
+from . import digit_grouping, flux_rate_labels, interleaved_lines
 from ._validate import (
     markup_message,
     odd_entry,
@@ -3608,6 +3608,14 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     judged = tuple(code for code in _numeric_codes(missing, decimal)
                    if math.isfinite(code) and abs(code) < JUDGED_MAGNITUDE)
     for name, column in read.items():
+        written = raw[column]
+        raw[column], regrouped, first_grouped = digit_grouping.ungrouped(written, decimal)
+        if regrouped:
+            warnings.append(
+                f"column {column!r} ({name.split(':')[0]}): {regrouped} cell(s) written with "
+                "thousands separators where they cannot be a decimal mark (first "
+                f"{written.iloc[first_grouped].strip()!r} on line {int(lines[first_grouped])} "
+                "of its file): read without them")
         codes = flag_missing if (flag_missing is not None and name in flag_keys) else missing
         codes = tuple(codes) + tuple(missing_by_variable.get(name, ()))
         numbers, n_missing, absurd = _numbers(raw[column], column, name, codes, decimal,
