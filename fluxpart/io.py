@@ -2447,8 +2447,7 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
         line = len(re.findall(rb"\r\n|\r|\n", data[:error.start])) + 1
         raise InputFileError(
             f"input file {str(path)!r} is not {encoding} text (byte 0x{data[error.start]:02x} "
-            f"on line {line}); set [input] encoding = \"latin-1\" (or \"cp1252\", or "
-            "\"utf-16\") to the encoding it was written in") from None
+            f"on line {line}); {_single_byte_advice(data, error.start)}") from None
     # the byte-order mark, also where files saved with one were joined end to end (a
     # header line starting with U+FEFF then is not the header line it repeats)
     text = text.replace("\ufeff", "")
@@ -2481,6 +2480,39 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
             "cut short by a power failure or a damaged memory card leaves them; delete them, "
             "and the record they damaged, in a copy of the file")
     return text, ("utf-8" if encoding == "utf-8-sig" else encoding)
+
+
+#: Single-byte encodings a logger's or a PC program's text file is written in: ISO
+#: 8859-1, Windows' Western European code page, and classic Mac OS's (Python codecs
+#: "latin-1", "cp1252", "mac_roman"; each maps the bytes 0x80-0xFF otherwise: 0xB5 is
+#: "µ" in the first two and "µ" too in Mac OS Roman, 0xB0 "°" in them and "∞" in Mac OS
+#: Roman, whose "°" is 0xA1 (Unicode mapping tables of the code pages (m)).
+_SINGLE_BYTE = ("latin-1", "cp1252", "mac_roman")
+
+
+def _single_byte_advice(data: bytes, start: int) -> str:
+    """The [input] encoding to set for a byte that is no UTF-8, with the word holding it as
+    each single-byte encoding reads it (so that the user sees which one writes the
+    file's "°C" or "µmol"). Mac OS Roman is named first where every line ends in CR alone
+    (classic Mac OS's line end), else Latin-1 (layouts36 left it unnamed)."""
+    cut = re.compile(rb"[\s,;\t\"]")
+    before = [m.end() for m in cut.finditer(data, max(0, start - 40), start)]
+    after = cut.search(data, start, start + 40)
+    word = data[before[-1] if before else max(0, start - 40):
+                after.start() if after else start + 40]
+    readings = {name: word.decode(name, errors="replace") for name in _SINGLE_BYTE}
+    order = list(_SINGLE_BYTE)
+    if b"\r" in data and b"\n" not in data:
+        order = ["mac_roman", "latin-1", "cp1252"]
+    same = {}
+    for name in order:
+        same.setdefault(readings[name], []).append(repr(name))
+    shown = "; ".join(f"as {' and '.join(names)} it reads {word!r}"
+                      for word, names in same.items())
+    mac = (" (its lines end in CR alone, as classic Mac OS writes them)"
+           if order[0] == "mac_roman" else "")
+    return (f"set [input] encoding = \"{order[0]}\"{mac} (or \"{order[1]}\", \"{order[2]}\", "
+            f"or \"utf-16\") to the encoding it was written in: {shown}")
 
 
 def _drop_zero_tail(path: Path, text: str, nul: int, warnings: list) -> str:
