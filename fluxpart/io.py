@@ -50,7 +50,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from . import digit_grouping, flux_rate_labels, interleaved_lines
+from . import digit_grouping, flux_rate_labels, interleaved_lines, later_files
 from ._validate import (
     markup_message,
     odd_entry,
@@ -892,6 +892,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     # cells of them all (review37: daily files of 48 records, each under MIN_CELLS)
     code_cells = {} if len(paths) > 1 else None
     renamed_in: dict = {}                     # (other name, mapped name) -> files
+    later_notes: dict = {}                    # later files lacking titles or a header
     for path_ in paths:
         try:
             part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
@@ -904,7 +905,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               time_marks=time_marks, site=site,
                               missing_by_variable=missing_by_variable,
                               code_cells=code_cells, column_widths=column_widths,
-                              other_names=other_names, renamed_in=renamed_in)
+                              other_names=other_names, renamed_in=renamed_in,
+                              first_header=(parts[0]["header_line"], parts[0]["under_header"])
+                              if parts else None, later_notes=later_notes)
         except _EmptyFileError as error:
             # one of several files without records (a logger file opened at a power cut):
             # it holds nothing to read, so the others are read and it is named
@@ -941,6 +944,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
                              f"{empty[0]!r}); check [input] path")
     _refuse_ordinary_code_of_files(code_cells, parts)
+    warnings.extend(_later_files_warnings(later_notes, parts[0], rows_before_header,
+                                          delimiter))
     header_rows = _header_rows_warning(parts)
     if header_rows:
         warnings.append(header_rows)
@@ -3557,16 +3562,22 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                utc_offset, warnings, may_lack=False, flag_missing=None,
                time_marks=None, site=None, missing_by_variable=None,
                code_cells=None, column_widths=(), other_names=None,
-               renamed_in=None) -> dict:
+               renamed_in=None, first_header=None, later_notes=None) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column.
 
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
-    instead of refused (one of several files).
+    instead of refused (one of several files). `first_header`: the header line and the
+    lines under it of the first file read (a later file of several), for a file that
+    lacks its title lines or its header (:mod:`fluxpart.later_files`), named in
+    `later_notes` (a dict of lists of files).
     """
     text, used_encoding = _decode(path, encoding, warnings)
     if column_widths:                         # a fixed-width file (layouts35)
         text = delimited(path, text, column_widths, rows_before_header)
     rows_before_header += _separator_line(text, delimiter, rows_before_header, path)
+    text, rows_before_header, rows_after_header, borrowed = _later_file_layout(
+        path, text, first_header, delimiter, rows_before_header, rows_after_header,
+        later_notes)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
                                    rows_after_header, warnings)
@@ -3574,13 +3585,17 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter,
                                                          rows_before_header,
                                                          rows_after_header, warnings)
-    except InputFileError:
+    except InputFileError as error:
         named = (unquoted_decimal_commas(str(path), text.splitlines(), rows_before_header,
                                          rows_before_header + rows_after_header + 1)
                  if delimiter == "," and decimal == "," else None)
         if named:
             raise InputFileError(named) from None
+        if borrowed:
+            raise InputFileError(f"{error} (line numbers count the first file's header "
+                                 "line put above this headerless file as line 1)") from None
         raise
+    lines = lines - borrowed
     if other_names:
         raw, header = _own_names(path, raw, header, columns, other_names, renamed_in)
     try:
@@ -3676,6 +3691,9 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
                 time_zone=time_zone)
     return {
+        "header_line": next(iter(text.splitlines()[rows_before_header:]), "").strip(),
+        "under_header": [line.strip() for line in text.splitlines()[
+            rows_before_header + 1:rows_before_header + 1 + rows_after_header]],
         "header_rows": _header_rows(text, header, read, delimiter, rows_before_header,
                                     rows_after_header),
         "source": source, "encoding": used_encoding, "mapping": mapping,
@@ -3693,6 +3711,56 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                            if parsed.rounded_to_minute else {}),
                         **({"date_only": parsed.date_only} if parsed.date_only else {})},
     }
+
+
+def _later_file_layout(path: Path, text: str, first_header, delimiter: str,
+                       rows_before_header: int, rows_after_header: int, notes
+                       ) -> tuple[str, int, int, int]:
+    """``(text, rows_before_header, rows_after_header, lines borrowed)`` of a later file
+    that lacks the first file's title lines or header (:mod:`fluxpart.later_files`;
+    its name listed in `notes` under "titles" or "header"; layouts37: refused before);
+    the file's own where it lacks neither. `first_header`: the first file's header line
+    and the lines under it that rows_after_header skips."""
+    if first_header is None:
+        return text, rows_before_header, rows_after_header, 0
+    header, under = first_header
+    text_lines = text.splitlines()
+    if next(iter(text_lines[rows_before_header:]), "").strip() == header:
+        return text, rows_before_header, rows_after_header, 0
+    above = later_files.title_lines_lacking(text_lines, header, rows_before_header)
+    if above is not None:
+        notes.setdefault("titles", []).append(str(path))
+        own_under = [line.strip() for line in text_lines[above + 1:above + 1 + len(under)]]
+        # the units lines written into the first file only too: none under this header
+        return text, above, rows_after_header if own_under == under else 0, 0
+    if not later_files.headerless(text_lines, header, delimiter):
+        return text, rows_before_header, rows_after_header, 0
+    notes.setdefault("header", []).append(str(path))
+    end = re.search(r"\r\n|\r|\n", text)
+    return header + (end.group() if end else "\n") + text, 0, 0, 1
+
+
+def _later_files_warnings(notes: dict, first: dict, rows_before_header: int,
+                          delimiter: str) -> list:
+    """One warning for the later files read from their own header line and one for those
+    read under the first file's header (:func:`_later_file_layout`)."""
+    found = []
+    if notes.get("titles"):
+        found.append(
+            f"{len(notes['titles'])} input file(s) ({_file_list(notes['titles'])}) have the "
+            f"header line of {first['source']!r}, character for character, with fewer lines "
+            f"above it than [input] rows_before_header = {rows_before_header} (title lines "
+            "written into the first file only?): read from their header line (and without "
+            "units lines where none stands under it)")
+    if notes.get("header"):
+        width = len(later_files.cells(first["header_line"], delimiter))
+        found.append(
+            f"{len(notes['header'])} input file(s) ({_file_list(notes['header'])}) have no "
+            f"header line, their first line a record of {width} fields as "
+            f"{first['source']!r}'s header names (a header written into the first file "
+            "only?): read under that header, with no title or units lines; their line "
+            "numbers as written")
+    return found
 
 
 def _refuse_stated_otherwise(text: str, header: list, time_columns: tuple, delimiter: str,
