@@ -15,7 +15,8 @@ that cannot take a record for one:
   record cut short by the power cut) is left to the reader's refusal;
 - a note line starts with a comment mark that no record of the file starts with, every
   note among the records starting with the same mark (the file's own), and a record
-  follows it (a block ending the file is a footer, judged by the reader); a mark that is
+  follows it (a block ending the file is a footer, judged by the reader); a line of the
+  header's fields with a number after the first is a record, not a note; a mark that is
   the delimiter, a whitespace-delimited file and a first field that is a spreadsheet error
   ("#N/A", "#VALUE!") are never read as one.
 
@@ -39,10 +40,11 @@ _SPREADSHEET_ERROR = re.compile(r"\s*#(?:N/A|VALUE!|DIV/0!|REF!|NAME\?|NUM!|NULL
                                 re.IGNORECASE)
 #: Line breaks other than CR, LF and CR LF that ``str.splitlines`` counts: a text holding
 #: one is left alone (its line numbers would differ between the reader's two counts).
+_NUMBER = re.compile(r"[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?")
 _OTHER_BREAKS = re.compile("[\x0b\x0c\x1c\x1d\x1e\x85\u2028\u2029]")
 
 
-def _fields(line: str, delimiter: str) -> int:
+def field_count(line: str, delimiter: str) -> int:
     """Fields of a line split at `delimiter` (quotes ignored: only compared to the
     header's width, which a quoted delimiter changes alike in every record)."""
     return line.count(delimiter) + 1
@@ -73,7 +75,7 @@ def repeated_header_blocks(lines: list, rows_before_header: int, rows_after_head
     units = [line.strip() for line in
              lines[rows_before_header + 1:rows_before_header + 1 + rows_after_header]]
     first_data = rows_before_header + rows_after_header + 1
-    width = _fields(header, delimiter)
+    width = field_count(header, delimiter)
     blocks = []
     for index in range(first_data, len(lines)):
         if lines[index].strip() != header:
@@ -87,16 +89,18 @@ def repeated_header_blocks(lines: list, rows_before_header: int, rows_after_head
         while before >= 0 and not lines[before].strip():
             before -= 1                                     # blank lines before it
         after_block = blocks and before == blocks[-1][1]
-        if not after_block and _fields(lines[before], delimiter) != width:
+        if not after_block and field_count(lines[before], delimiter) != width:
             return []
         blocks.append((first, last))
     return blocks
 
 
-def note_lines(lines: list, first_data: int, delimiter: str) -> tuple[list, str | None]:
+def note_lines(lines: list, first_data: int, delimiter: str, width: int
+               ) -> tuple[list, str | None]:
     """Indices (0-based) of the note lines among the records and their mark, by the rules
     of the module; ``([], None)`` where there are none or they are not the file's own
-    (two marks, or a record starting with the mark)."""
+    (two marks, or a record starting with the mark: a line of the header's `width`
+    fields with a number after its first)."""
     if delimiter == "whitespace":
         return [], None
     marks = tuple(mark for mark in COMMENT_MARKS if not mark.startswith(delimiter))
@@ -106,10 +110,16 @@ def note_lines(lines: list, first_data: int, delimiter: str) -> tuple[list, str 
         if not line.strip():
             continue
         mark = _mark(line, marks)
+        if mark is not None and field_count(line, delimiter) == width and any(
+                _NUMBER.fullmatch(field.strip()) for field in line.split(delimiter)[1:]):
+            record_marks.add(mark)                        # "#12,0.31,...": a record
+            last_record = index
+            continue
         if mark is None:
             last_record = index
             first_field = line.split(delimiter, 1)[0].lstrip()
-            record_marks.update(m for m in marks if first_field.startswith(m))
+            if not _SPREADSHEET_ERROR.match(first_field):
+                record_marks.update(m for m in marks if first_field.startswith(m))
         else:
             found.append(index)
     notes = [index for index in found if last_record is not None and index < last_record]

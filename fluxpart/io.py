@@ -3052,8 +3052,10 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
             "among the records, the same characters (a logger program restarted?), on "
             f"{_lines_word(skipped)} {interleaved_lines.ranges(sorted(skipped))}: skipped")
     kept = [("" if index in skipped else line) for index, line in enumerate(lines)]
+    width = (interleaved_lines.field_count(lines[rows_before_header], delimiter)
+             if rows_before_header < len(lines) else 0)
     notes, mark = interleaved_lines.note_lines(kept, rows_before_header + rows_after_header
-                                               + 1, delimiter)
+                                               + 1, delimiter, width)
     if notes:
         warnings.append(
             f"input file {str(path)!r}: {len(notes)} note line(s) among the records start "
