@@ -10,7 +10,8 @@ that cannot take a record for one:
 - a repeated header is the header line itself, character for character (blanks around it
   aside), with the title lines above it and the units lines under it each equal to the
   file's own (as many as ``rows_before_header`` and ``rows_after_header``), and with a
-  record (a line of the header's fields) or the header's own block before it: a header
+  record (a line of the header's fields) or the header's own block before it, blank and
+  note lines aside (the notes judged as below): a header
   after a line of another width (a page number, a title the settings do not count, a
   record cut short by the power cut) is left to the reader's refusal;
 - a note line starts with a comment mark that no record of the file starts with, every
@@ -86,8 +87,9 @@ def repeated_header_blocks(lines: list, rows_before_header: int, rows_after_head
                 or [line.strip() for line in lines[index + 1:last + 1]] != units):
             return []
         before = first - 1
-        while before >= 0 and not lines[before].strip():
-            before -= 1                                     # blank lines before it
+        marks = tuple(mark for mark in COMMENT_MARKS if not mark.startswith(delimiter))
+        while before >= 0 and (not lines[before].strip() or _mark(lines[before], marks)):
+            before -= 1              # blank lines and notes before it ("# power cut")
         after_block = blocks and before == blocks[-1][1]
         if not after_block and field_count(lines[before], delimiter) != width:
             return []

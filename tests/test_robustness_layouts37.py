@@ -58,6 +58,7 @@ def _lines():
      {"rows_before_header": 1, "rows_after_header": 1}, "on lines 104-106: skipped"),
     (["Quillmoor T2"], [UNITS_LINE], lambda h: ["", "Quillmoor T2", h, UNITS_LINE],
      {"rows_before_header": 1, "rows_after_header": 1}, "on lines 105-107: skipped"),
+    ([], [], lambda h: ["# power cut", h], {}, "on line 103: skipped"),   # a note before
 ])
 def test_a_header_written_again_after_a_restart_is_skipped(tmp_path, before, after, block,
                                                            options, skipped):
