@@ -46,6 +46,16 @@ def _grouped(separator: str, decimal: str) -> re.Pattern:
     return re.compile(rf"[+-]?[1-9]\d{{0,2}}(?:{sep}\d{{3}})+(?:{dec}\d*)?")
 
 
+def may_hold(text: str, decimal: str, delimiter: str) -> bool:
+    """False where no cell of the file's text can hold a thousands separator (C-speed
+    passes): none of the separators is in it, or the only one is the delimiter and no
+    quote is (an unquoted delimiter separates fields)."""
+    other = "." if decimal == "," else ","
+    if any(mark in text for mark in NEVER_DECIMAL):
+        return True
+    return other in text and (other != delimiter or '"' in text)
+
+
 def ungrouped(cells: pd.Series, decimal: str) -> tuple[pd.Series, int, int]:
     """`cells` (text, stripped or not) with thousands separators removed where they
     cannot be a decimal mark (rules of the module); the count of cells changed and the

@@ -58,6 +58,28 @@ def _mark(line: str, marks: tuple) -> str | None:
     return next((mark for mark in marks if stripped.startswith(mark)), None)
 
 
+#: A line opening with a comment mark (any line, blanks before the mark aside).
+_MARKED_LINE = re.compile(r"[\r\n][ \t]*(?:#|//|/\*|%|!|;)")
+
+
+def may_hold(text: str, rows_before_header: int, delimiter: str) -> bool:
+    """False where the text can hold neither a repeated header nor a note line: its
+    header line occurs once and no line opens with a comment mark (C-speed passes, so
+    that the usual file costs no Python loop over its lines)."""
+    if delimiter == "whitespace":
+        return False
+    start = 0
+    for _ in range(rows_before_header + 1):
+        found = re.compile(r"\r\n|\r|\n").search(text, start)
+        if found is None:
+            return False
+        header, start = text[start:found.start()].strip(), found.end()
+    if header and text.count(header, start) > 0:
+        return True
+    marks = [mark for mark in COMMENT_MARKS if not mark.startswith(delimiter)]
+    return any(mark in text for mark in marks) and bool(_MARKED_LINE.search(text, start))
+
+
 def repeated_header_blocks(lines: list, rows_before_header: int, rows_after_header: int,
                            delimiter: str) -> list:
     """Blocks ``(first, last)`` (0-based line indices, inclusive) of the header written

@@ -3040,6 +3040,8 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
     """`text` with the header blocks written again after a logger restart and the note
     lines among the records emptied (line numbers kept), each named in `warnings`
     (:mod:`fluxpart.interleaved_lines`; layouts37: refused before)."""
+    if not interleaved_lines.may_hold(text, rows_before_header, delimiter):
+        return text                           # one C pass each; most files stop here
     lines = text.splitlines()
     blocks = interleaved_lines.repeated_header_blocks(lines, rows_before_header,
                                                       rows_after_header, delimiter)
@@ -3656,9 +3658,11 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     missing_by_variable = missing_by_variable or {}
     judged = tuple(code for code in _numeric_codes(missing, decimal)
                    if math.isfinite(code) and abs(code) < JUDGED_MAGNITUDE)
+    grouping = digit_grouping.may_hold(text, decimal, delimiter)
     for name, column in read.items():
         written = raw[column]
-        raw[column], regrouped, first_grouped = digit_grouping.ungrouped(written, decimal)
+        raw[column], regrouped, first_grouped = (
+            digit_grouping.ungrouped(written, decimal) if grouping else (written, 0, -1))
         if regrouped:
             warnings.append(
                 f"column {column!r} ({name.split(':')[0]}): {regrouped} cell(s) written with "
