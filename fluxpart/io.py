@@ -3762,10 +3762,10 @@ def _later_files_warnings(notes: dict, first: dict, rows_before_header: int,
         width = len(later_files.cells(first["header_line"], delimiter))
         found.append(
             f"{len(notes['header'])} input file(s) ({_file_list(notes['header'])}) have no "
-            f"header line, their first line a record of {width} fields as "
-            f"{first['source']!r}'s header names (a header written into the first file "
-            "only?): read under that header, with no title or units lines; their line "
-            "numbers as written")
+            f"header line, their first line a record of the {width} fields the header of "
+            f"{first['source']!r} names (a header written into the first file only?): read "
+            "under that header, with no title or units lines; their line numbers as "
+            "written")
     return found
 
 
