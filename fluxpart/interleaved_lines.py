@@ -45,10 +45,14 @@ _NUMBER = re.compile(r"[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?")
 _OTHER_BREAKS = re.compile("[\x0b\x0c\x1c\x1d\x1e\x85\u2028\u2029]")
 
 
+def _split(line: str, delimiter: str) -> list:
+    return line.split() if delimiter == "whitespace" else line.split(delimiter)
+
+
 def field_count(line: str, delimiter: str) -> int:
     """Fields of a line split at `delimiter` (quotes ignored: only compared to the
     header's width, which a quoted delimiter changes alike in every record)."""
-    return line.count(delimiter) + 1
+    return len(_split(line, delimiter))
 
 
 def _mark(line: str, marks: tuple) -> str | None:
@@ -62,11 +66,11 @@ def _mark(line: str, marks: tuple) -> str | None:
 _MARKED_LINE = re.compile(r"[\r\n][ \t]*(?:#|//|/\*|%|!|;)")
 
 
-def may_hold(text: str, rows_before_header: int, delimiter: str) -> bool:
+def may_hold(text: str, rows_before_header: int, delimiter: str, note_mark=None) -> bool:
     """False where the text can hold neither a repeated header nor a note line: its
     header line occurs once and no line opens with a comment mark (C-speed passes, so
     that the usual file costs no Python loop over its lines)."""
-    if delimiter == "whitespace":
+    if delimiter == "whitespace" and not note_mark:
         return False
     start = 0
     for _ in range(rows_before_header + 1):
@@ -76,6 +80,8 @@ def may_hold(text: str, rows_before_header: int, delimiter: str) -> bool:
         header, start = text[start:found.start()].strip(), found.end()
     if header and text.count(header, start) > 0:
         return True
+    if note_mark:
+        return note_mark in text[start:]
     marks = [mark for mark in COMMENT_MARKS if not mark.startswith(delimiter)]
     return any(mark in text for mark in marks) and bool(_MARKED_LINE.search(text, start))
 
@@ -119,15 +125,21 @@ def repeated_header_blocks(lines: list, rows_before_header: int, rows_after_head
     return blocks
 
 
-def note_lines(lines: list, first_data: int, delimiter: str, width: int
+def note_lines(lines: list, first_data: int, delimiter: str, width: int, note_mark=None
                ) -> tuple[list, str | None]:
     """Indices (0-based) of the note lines among the records and their mark, by the rules
     of the module; ``([], None)`` where there are none or they are not the file's own
     (two marks, or a record starting with the mark: a line of the header's `width`
-    fields with a number after its first)."""
-    if delimiter == "whitespace":
+    fields with a number after its first).
+
+    `note_mark` (``[input] note_mark``): the mark is the setting's, also where it opens
+    the delimiter or a whitespace-delimited file's line, and notes after the last record
+    are notes too; a record starting with it still leaves every note unread.
+    """
+    if delimiter == "whitespace" and not note_mark:
         return [], None
-    marks = tuple(mark for mark in COMMENT_MARKS if not mark.startswith(delimiter))
+    marks = ((note_mark,) if note_mark else
+             tuple(mark for mark in COMMENT_MARKS if not mark.startswith(delimiter)))
     found, record_marks, last_record = [], set(), None
     for index in range(first_data, len(lines)):
         line = lines[index]
@@ -135,18 +147,19 @@ def note_lines(lines: list, first_data: int, delimiter: str, width: int
             continue
         mark = _mark(line, marks)
         if mark is not None and field_count(line, delimiter) == width and any(
-                _NUMBER.fullmatch(field.strip()) for field in line.split(delimiter)[1:]):
+                _NUMBER.fullmatch(field.strip()) for field in _split(line, delimiter)[1:]):
             record_marks.add(mark)                        # "#12,0.31,...": a record
             last_record = index
             continue
         if mark is None:
             last_record = index
-            first_field = line.split(delimiter, 1)[0].lstrip()
+            first_field = next(iter(_split(line, delimiter)), "").lstrip()
             if not _SPREADSHEET_ERROR.match(first_field):
                 record_marks.update(m for m in marks if first_field.startswith(m))
         else:
             found.append(index)
-    notes = [index for index in found if last_record is not None and index < last_record]
+    notes = [index for index in found if last_record is not None
+             and (note_mark or index < last_record)]
     if not notes:
         return [], None
     marks_used = {_mark(lines[index], marks) for index in notes}

@@ -150,7 +150,7 @@ _SITE_KEYS = ("canopy", "latitude", "longitude", "name", "utc_offset")
 _SITE_REQUIRED = ("name", "latitude", "longitude", "utc_offset")
 _INPUT_KEYS = ("accept_units", "column_widths", "columns", "decimal", "delimiter", "encoding",
                "flag_accept", "other_names",
-               "interval_minutes", "missing", "missing_by_variable", "path",
+               "interval_minutes", "missing", "missing_by_variable", "note_mark", "path",
                "rows_after_header",
                "rows_before_header", "time_column", "time_format", "time_marks", "time_zone",
                "units")
@@ -486,6 +486,9 @@ class SiteConfig:
     column_widths : tuple of int
         Characters of each column of a fixed-width file (``[input] column_widths``), or
         () for a delimited one.
+    note_mark : str or None
+        What opens the note lines written among the records (``[input] note_mark``), or
+        None to find a comment mark the file's notes share (round layouts37).
     """
 
     site: Site
@@ -510,6 +513,7 @@ class SiteConfig:
     missing_by_variable: dict = field(default_factory=dict)
     column_widths: tuple = ()
     other_names: dict = field(default_factory=dict)
+    note_mark: str | None = None
 
     @property
     def input_path(self) -> Path:
@@ -562,7 +566,8 @@ class SiteConfig:
                 "site": self.site} | ({"missing_by_variable": dict(self.missing_by_variable)}
                                       if self.missing_by_variable else {}) | (
             {"column_widths": self.column_widths} if self.column_widths else {}) | (
-            {"other_names": dict(self.other_names)} if self.other_names else {})
+            {"other_names": dict(self.other_names)} if self.other_names else {}) | (
+            {"note_mark": self.note_mark} if self.note_mark else {})
 
 
 def read_config(path) -> tuple[pd.DataFrame, Site]:
@@ -706,6 +711,7 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
         column_widths=column_widths,
         other_names=_check_other_names(input_table.get("other_names", {}), columns,
                                        time_column),
+        note_mark=_check_note_mark(input_table.get("note_mark")),
     )
 
 
@@ -714,7 +720,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                encoding=None, rows_before_header=0, rows_after_header=0, time_zone=None,
                flag_accept=_DEFAULT_FLAG_ACCEPT, accept_units=(), site=None,
                unit_problems="refuse", missing_by_variable=None, column_widths=None,
-               other_names=None):
+               other_names=None, note_mark=None):
     """Read delimited or fixed-width files of tower records into the canonical frame.
 
     Parameters
@@ -748,6 +754,11 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         Characters of each column of a fixed-width file, left to right (instead of a
         `delimiter`): every line below ``rows_before_header`` is cut at these widths
         and its fields stripped of blanks; a field of blanks is an empty cell.
+    note_mark : str, optional
+        What opens a note line among the records (``"#"``, ``";"``, ``"REM"``): every
+        line after the header's that opens with it (blanks before it aside) is skipped
+        and named. Without it, a comment mark that every note of the file shares and no
+        record starts with is found (:mod:`fluxpart.interleaved_lines`).
     interval_minutes : {30, 60}, optional
         Record interval [minutes]; inferred from the most common spacing if omitted.
     decimal : {".", ","}
@@ -857,6 +868,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         delimiter = "\t"                     # the fields cut at the widths, tab-joined
     decimal = _check_decimal(decimal, delimiter)
     encoding = _check_encoding(encoding)
+    note_mark = _check_note_mark(note_mark)
     rows_before_header = _check_rows(rows_before_header, "rows_before_header")
     rows_after_header = _check_rows(rows_after_header, "rows_after_header")
     interval_minutes = _check_interval(interval_minutes)
@@ -906,6 +918,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               missing_by_variable=missing_by_variable,
                               code_cells=code_cells, column_widths=column_widths,
                               other_names=other_names, renamed_in=renamed_in,
+                              note_mark=note_mark,
                               first_header=(parts[0]["header_line"], parts[0]["under_header"])
                               if parts else None, later_notes=later_notes)
         except _EmptyFileError as error:
@@ -1714,6 +1727,19 @@ def _check_encoding(value):
     except LookupError:
         raise ConfigError(f"[input] encoding = {setting_text(value)} is not a known text encoding; use "
                           "e.g. \"utf-8\", \"latin-1\", \"cp1252\" or \"utf-16\"") from None
+    return value
+
+
+def _check_note_mark(value):
+    """``[input] note_mark``: what opens a note line among the records, or None."""
+    if value is None:
+        return None
+    if (not isinstance(value, str) or not value.strip() or value != value.strip()
+            or re.match(r"[\d+\-.,\"]", value)):
+        raise ConfigError(f"[input] note_mark = {setting_text(value)}: expected the "
+                          "characters that open a note line among the records, e.g. \"#\" "
+                          "or \";\" (not a digit, sign, point, comma, quote or blank, which "
+                          "open records)")
     return value
 
 
@@ -3036,11 +3062,11 @@ def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "
 
 
 def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_header: int,
-                            rows_after_header: int, warnings: list) -> str:
+                            rows_after_header: int, warnings: list, note_mark=None) -> str:
     """`text` with the header blocks written again after a logger restart and the note
     lines among the records emptied (line numbers kept), each named in `warnings`
     (:mod:`fluxpart.interleaved_lines`; layouts37: refused before)."""
-    if not interleaved_lines.may_hold(text, rows_before_header, delimiter):
+    if not interleaved_lines.may_hold(text, rows_before_header, delimiter, note_mark):
         return text                           # one C pass each; most files stop here
     lines = text.splitlines()
     blocks = interleaved_lines.repeated_header_blocks(lines, rows_before_header,
@@ -3057,11 +3083,12 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
     width = (interleaved_lines.field_count(lines[rows_before_header], delimiter)
              if rows_before_header < len(lines) else 0)
     notes, mark = interleaved_lines.note_lines(kept, rows_before_header + rows_after_header
-                                               + 1, delimiter, width)
+                                               + 1, delimiter, width, note_mark)
     if notes:
+        why = "[input] note_mark" if note_mark else "as no record does"
         warnings.append(
             f"input file {str(path)!r}: {len(notes)} note line(s) among the records start "
-            f"with {mark!r}, as no record does ({_lines_word(notes)} "
+            f"with {mark!r}, {why} ({_lines_word(notes)} "
             f"{interleaved_lines.ranges(notes)}: "
             f"{_shown_line(lines[notes[0]])!r}, ...): skipped")
         skipped.update(notes)
@@ -3566,7 +3593,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                utc_offset, warnings, may_lack=False, flag_missing=None,
                time_marks=None, site=None, missing_by_variable=None,
                code_cells=None, column_widths=(), other_names=None,
-               renamed_in=None, first_header=None, later_notes=None) -> dict:
+               renamed_in=None, first_header=None, later_notes=None,
+               note_mark=None) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column.
 
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
@@ -3584,7 +3612,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         later_notes)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
-                                   rows_after_header, warnings)
+                                   rows_after_header, warnings, note_mark)
     try:
         raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter,
                                                          rows_before_header,

@@ -21,7 +21,7 @@ from test_robustness_layouts35 import _records  # invented records of 1-10 June 
 from test_robustness_layouts36 import MAPPING, SITE, UNITS_LINE
 
 from fluxpart.digit_grouping import ungrouped
-from fluxpart.errors import InputFileError, MissingColumnError, TimestampError
+from fluxpart.errors import ConfigError, InputFileError, MissingColumnError, TimestampError
 from fluxpart.interleaved_lines import note_lines, repeated_header_blocks
 from fluxpart.io import read_table
 from fluxpart.stamp_places import stated_offset, stated_place
@@ -222,3 +222,31 @@ def test_a_byte_of_mac_os_roman_names_mac_roman_first(tmp_path):
                                              r"as 'mac_roman' it reads '°C'; as 'latin-1' and "
                                              r"'cp1252' it reads '¡C'"):
         _read(path, rows_after_header=1)
+
+
+# ------------------------------------------------------- [input] note_mark
+@pytest.mark.parametrize("note, mark, delimiter", [
+    ("; maintenance visit", ";", ";"),        # a leading empty field without the setting
+    ("REM power cut", "REM", ","), ("# zero check", "#", "whitespace")])
+def test_a_note_mark_setting_reads_notes_the_file_alone_cannot_tell(tmp_path, note, mark,
+                                                                    delimiter):
+    frame, ends, header, records = _lines()
+    sep = " " if delimiter == "whitespace" else delimiter
+    rows = [line.replace(",", sep) for line in [header] + records]
+    path = tmp_path / "t.csv"
+    path.write_text("\n".join(rows[:101] + [note] + rows[101:] + [note]) + "\n")
+    if delimiter != "whitespace":
+        with pytest.raises(InputFileError, match=r"line 102"):
+            _read(path, delimiter=delimiter)
+    read, report = _read(path, delimiter=delimiter, note_mark=mark)
+    _assert_all(read, frame, ends)
+    assert any(f"2 note line(s) among the records start with {mark!r}, [input] note_mark "
+               "(lines 102, 483" in w for w in report.warnings)
+
+
+def test_a_note_mark_that_opens_records_is_refused(tmp_path):
+    _, _, header, records = _lines()
+    path = tmp_path / "t.csv"
+    path.write_text("\n".join([header] + records) + "\n")
+    with pytest.raises(ConfigError, match=r"note_mark = \"2\""):
+        _read(path, note_mark="2")
