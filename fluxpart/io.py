@@ -50,7 +50,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from . import flux_rate_labels
+from . import digit_grouping, flux_rate_labels, interleaved_lines, later_files
 from ._validate import (
     markup_message,
     odd_entry,
@@ -151,7 +151,7 @@ _SITE_KEYS = ("canopy", "latitude", "longitude", "name", "utc_offset")
 _SITE_REQUIRED = ("name", "latitude", "longitude", "utc_offset")
 _INPUT_KEYS = ("accept_units", "column_widths", "columns", "decimal", "delimiter", "encoding",
                "flag_accept", "other_names",
-               "interval_minutes", "missing", "missing_by_variable", "path",
+               "interval_minutes", "missing", "missing_by_variable", "note_mark", "path",
                "rows_after_header",
                "rows_before_header", "time_column", "time_format", "time_marks", "time_zone",
                "units")
@@ -172,7 +172,7 @@ _WHITESPACE = "whitespace"
 #: What opens a comment line: "#" (shell, Python, R), "//" and "/*" (C, C++, Java), "%"
 #: (MATLAB, Octave), "!" (Fortran 90), ";" (INI files, assembler) (each language's
 #: reference (m)); no record of a delimited table starts with one of them
-_COMMENT_MARKS = ("#", "//", "/*", "%", "!", ";")
+_COMMENT_MARKS = interleaved_lines.COMMENT_MARKS
 _GLOB_CHARACTERS = set("*?[")
 #: A number written with digit grouping (thousands separators) for each decimal mark:
 #: "1.034,5" or "1.034" where the decimal mark is a comma, "1,034.5" or "1,034" where it
@@ -487,6 +487,9 @@ class SiteConfig:
     column_widths : tuple of int
         Characters of each column of a fixed-width file (``[input] column_widths``), or
         () for a delimited one.
+    note_mark : str or None
+        What opens the note lines written among the records (``[input] note_mark``), or
+        None to find a comment mark the file's notes share (round layouts37).
     """
 
     site: Site
@@ -511,6 +514,7 @@ class SiteConfig:
     missing_by_variable: dict = field(default_factory=dict)
     column_widths: tuple = ()
     other_names: dict = field(default_factory=dict)
+    note_mark: str | None = None
 
     @property
     def input_path(self) -> Path:
@@ -563,7 +567,8 @@ class SiteConfig:
                 "site": self.site} | ({"missing_by_variable": dict(self.missing_by_variable)}
                                       if self.missing_by_variable else {}) | (
             {"column_widths": self.column_widths} if self.column_widths else {}) | (
-            {"other_names": dict(self.other_names)} if self.other_names else {})
+            {"other_names": dict(self.other_names)} if self.other_names else {}) | (
+            {"note_mark": self.note_mark} if self.note_mark else {})
 
 
 def read_config(path) -> tuple[pd.DataFrame, Site]:
@@ -707,6 +712,7 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
         column_widths=column_widths,
         other_names=_check_other_names(input_table.get("other_names", {}), columns,
                                        time_column),
+        note_mark=_check_note_mark(input_table.get("note_mark")),
     )
 
 
@@ -715,7 +721,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                encoding=None, rows_before_header=0, rows_after_header=0, time_zone=None,
                flag_accept=_DEFAULT_FLAG_ACCEPT, accept_units=(), site=None,
                unit_problems="refuse", missing_by_variable=None, column_widths=None,
-               other_names=None):
+               other_names=None, note_mark=None):
     """Read delimited or fixed-width files of tower records into the canonical frame.
 
     Parameters
@@ -749,6 +755,11 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         Characters of each column of a fixed-width file, left to right (instead of a
         `delimiter`): every line below ``rows_before_header`` is cut at these widths
         and its fields stripped of blanks; a field of blanks is an empty cell.
+    note_mark : str, optional
+        What opens a note line among the records (``"#"``, ``";"``, ``"REM"``): every
+        line after the header's that opens with it (blanks before it aside) is skipped
+        and named. Without it, a comment mark that every note of the file shares and no
+        record starts with is found (:mod:`fluxpart.interleaved_lines`).
     interval_minutes : {30, 60}, optional
         Record interval [minutes]; inferred from the most common spacing if omitted.
     decimal : {".", ","}
@@ -858,6 +869,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         delimiter = "\t"                     # the fields cut at the widths, tab-joined
     decimal = _check_decimal(decimal, delimiter)
     encoding = _check_encoding(encoding)
+    note_mark = _check_note_mark(note_mark)
     rows_before_header = _check_rows(rows_before_header, "rows_before_header")
     rows_after_header = _check_rows(rows_after_header, "rows_after_header")
     interval_minutes = _check_interval(interval_minutes)
@@ -893,6 +905,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     # cells of them all (review37: daily files of 48 records, each under MIN_CELLS)
     code_cells = {} if len(paths) > 1 else None
     renamed_in: dict = {}                     # (other name, mapped name) -> files
+    later_notes: dict = {}                    # later files lacking titles or a header
     for path_ in paths:
         try:
             part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
@@ -905,7 +918,10 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               time_marks=time_marks, site=site,
                               missing_by_variable=missing_by_variable,
                               code_cells=code_cells, column_widths=column_widths,
-                              other_names=other_names, renamed_in=renamed_in)
+                              other_names=other_names, renamed_in=renamed_in,
+                              note_mark=note_mark,
+                              first_header=(parts[0]["header_line"], parts[0]["under_header"])
+                              if parts else None, later_notes=later_notes)
         except _EmptyFileError as error:
             # one of several files without records (a logger file opened at a power cut):
             # it holds nothing to read, so the others are read and it is named
@@ -942,6 +958,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
                              f"{empty[0]!r}); check [input] path")
     _refuse_ordinary_code_of_files(code_cells, parts)
+    warnings.extend(_later_files_warnings(later_notes, parts[0], rows_before_header,
+                                          delimiter))
     header_rows = _header_rows_warning(parts)
     if header_rows:
         warnings.append(header_rows)
@@ -1726,6 +1744,19 @@ def _check_encoding(value):
     return value
 
 
+def _check_note_mark(value):
+    """``[input] note_mark``: what opens a note line among the records, or None."""
+    if value is None:
+        return None
+    if (not isinstance(value, str) or not value.strip() or value != value.strip()
+            or re.match(r"[\d+\-.,\"]", value)):
+        raise ConfigError(f"[input] note_mark = {setting_text(value)}: expected the "
+                          "characters that open a note line among the records, e.g. \"#\" "
+                          "or \";\" (not a digit, sign, point, comma, quote or blank, which "
+                          "open records)")
+    return value
+
+
 def _check_rows(value, name: str) -> int:
     if isinstance(value, bool) or not isinstance(value, int) or value < 0:
         raise ConfigError(f"[input] {name} = {setting_text(value)}: expected a whole number of lines >= 0")
@@ -2460,8 +2491,7 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
         line = len(re.findall(rb"\r\n|\r|\n", data[:error.start])) + 1
         raise InputFileError(
             f"input file {str(path)!r} is not {encoding} text (byte 0x{data[error.start]:02x} "
-            f"on line {line}); set [input] encoding = \"latin-1\" (or \"cp1252\", or "
-            "\"utf-16\") to the encoding it was written in") from None
+            f"on line {line}); {_single_byte_advice(data, error.start)}") from None
     # the byte-order mark, also where files saved with one were joined end to end (a
     # header line starting with U+FEFF then is not the header line it repeats)
     text = text.replace("\ufeff", "")
@@ -2494,6 +2524,39 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
             "cut short by a power failure or a damaged memory card leaves them; delete them, "
             "and the record they damaged, in a copy of the file")
     return text, ("utf-8" if encoding == "utf-8-sig" else encoding)
+
+
+#: Single-byte encodings a logger's or a PC program's text file is written in: ISO
+#: 8859-1, Windows' Western European code page, and classic Mac OS's (Python codecs
+#: "latin-1", "cp1252", "mac_roman"; each maps the bytes 0x80-0xFF otherwise: 0xB5 is
+#: "µ" in the first two and "µ" too in Mac OS Roman, 0xB0 "°" in them and "∞" in Mac OS
+#: Roman, whose "°" is 0xA1 (Unicode mapping tables of the code pages (m)).
+_SINGLE_BYTE = ("latin-1", "cp1252", "mac_roman")
+
+
+def _single_byte_advice(data: bytes, start: int) -> str:
+    """The [input] encoding to set for a byte that is no UTF-8, with the word holding it as
+    each single-byte encoding reads it (so that the user sees which one writes the
+    file's "°C" or "µmol"). Mac OS Roman is named first where every line ends in CR alone
+    (classic Mac OS's line end), else Latin-1 (layouts36 left it unnamed)."""
+    cut = re.compile(rb"[\s,;\t\"]")
+    before = [m.end() for m in cut.finditer(data, max(0, start - 40), start)]
+    after = cut.search(data, start, start + 40)
+    word = data[before[-1] if before else max(0, start - 40):
+                after.start() if after else start + 40]
+    readings = {name: word.decode(name, errors="replace") for name in _SINGLE_BYTE}
+    order = list(_SINGLE_BYTE)
+    if b"\r" in data and b"\n" not in data:
+        order = ["mac_roman", "latin-1", "cp1252"]
+    same = {}
+    for name in order:
+        same.setdefault(readings[name], []).append(repr(name))
+    shown = "; ".join(f"as {' and '.join(names)} it reads {word!r}"
+                      for word, names in same.items())
+    mac = (" (its lines end in CR alone, as classic Mac OS writes them)"
+           if order[0] == "mac_roman" else "")
+    return (f"set [input] encoding = \"{order[0]}\"{mac} (or \"{order[1]}\", \"{order[2]}\", "
+            f"or \"utf-16\") to the encoding it was written in: {shown}")
 
 
 def _drop_zero_tail(path: Path, text: str, nul: int, warnings: list) -> str:
@@ -3011,6 +3074,44 @@ def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "
             f"{' '.join(error.split())}")
 
 
+def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_header: int,
+                            rows_after_header: int, warnings: list, note_mark=None) -> str:
+    """`text` with the header blocks written again after a logger restart and the note
+    lines among the records emptied (line numbers kept), each named in `warnings`
+    (:mod:`fluxpart.interleaved_lines`; layouts37: refused before)."""
+    if not interleaved_lines.may_hold(text, rows_before_header, delimiter, note_mark):
+        return text                           # one C pass each; most files stop here
+    lines = text.splitlines()
+    blocks = interleaved_lines.repeated_header_blocks(lines, rows_before_header,
+                                                      rows_after_header, delimiter)
+    skipped = {index for first, last in blocks for index in range(first, last + 1)}
+    if blocks:
+        what = ("header line" if not rows_before_header + rows_after_header
+                else "header line with its title and units lines")
+        warnings.append(
+            f"input file {str(path)!r}: the {what} written again {len(blocks)} time(s) "
+            "among the records, the same characters (a logger program restarted?), on "
+            f"{_lines_word(skipped)} {interleaved_lines.ranges(sorted(skipped))}: skipped")
+    kept = [("" if index in skipped else line) for index, line in enumerate(lines)]
+    width = (interleaved_lines.field_count(lines[rows_before_header], delimiter)
+             if rows_before_header < len(lines) else 0)
+    notes, mark = interleaved_lines.note_lines(kept, rows_before_header + rows_after_header
+                                               + 1, delimiter, width, note_mark)
+    if notes:
+        why = "[input] note_mark" if note_mark else "as no record does"
+        warnings.append(
+            f"input file {str(path)!r}: {len(notes)} note line(s) among the records start "
+            f"with {mark!r}, {why} ({_lines_word(notes)} "
+            f"{interleaved_lines.ranges(notes)}: "
+            f"{_shown_line(lines[notes[0]])!r}, ...): skipped")
+        skipped.update(notes)
+    return _emptied_lines(text, skipped)
+
+
+def _lines_word(indices) -> str:
+    return "line" if len(indices) == 1 else "lines"
+
+
 def _emptied_lines(text: str, numbers: set) -> str:
     """`text` with the lines of the given 0-based `numbers` emptied, line ends kept."""
     if not numbers:
@@ -3505,28 +3606,41 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                utc_offset, warnings, may_lack=False, flag_missing=None,
                time_marks=None, site=None, missing_by_variable=None,
                code_cells=None, column_widths=(), other_names=None,
-               renamed_in=None) -> dict:
+               renamed_in=None, first_header=None, later_notes=None,
+               note_mark=None) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column.
 
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
-    instead of refused (one of several files).
+    instead of refused (one of several files). `first_header`: the header line and the
+    lines under it of the first file read (a later file of several), for a file that
+    lacks its title lines or its header (:mod:`fluxpart.later_files`), named in
+    `later_notes` (a dict of lists of files).
     """
     text, used_encoding = _decode(path, encoding, warnings)
     if column_widths:                         # a fixed-width file (layouts35)
         text = delimited(path, text, column_widths, rows_before_header)
     rows_before_header += _separator_line(text, delimiter, rows_before_header, path)
+    text, rows_before_header, rows_after_header, borrowed = _later_file_layout(
+        path, text, first_header, delimiter, rows_before_header, rows_after_header,
+        later_notes)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
+    text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
+                                   rows_after_header, warnings, note_mark)
     try:
         raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter,
                                                          rows_before_header,
                                                          rows_after_header, warnings)
-    except InputFileError:
+    except InputFileError as error:
         named = (unquoted_decimal_commas(str(path), text.splitlines(), rows_before_header,
                                          rows_before_header + rows_after_header + 1)
                  if delimiter == "," and decimal == "," else None)
         if named:
             raise InputFileError(named) from None
+        if borrowed:
+            raise InputFileError(f"{error} (line numbers count the first file's header "
+                                 "line put above this headerless file as line 1)") from None
         raise
+    lines = lines - borrowed
     if other_names:
         raw, header = _own_names(path, raw, header, columns, other_names, renamed_in)
     try:
@@ -3585,7 +3699,17 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     missing_by_variable = missing_by_variable or {}
     judged = tuple(code for code in _numeric_codes(missing, decimal)
                    if math.isfinite(code) and abs(code) < JUDGED_MAGNITUDE)
+    grouping = digit_grouping.may_hold(text, decimal, delimiter)
     for name, column in read.items():
+        written = raw[column]
+        raw[column], regrouped, first_grouped = (
+            digit_grouping.ungrouped(written, decimal) if grouping else (written, 0, -1))
+        if regrouped:
+            warnings.append(
+                f"column {column!r} ({name.split(':')[0]}): {regrouped} cell(s) written with "
+                "thousands separators where they cannot be a decimal mark (first "
+                f"{written.iloc[first_grouped].strip()!r} on line {int(lines[first_grouped])} "
+                "of its file): read without them")
         codes = flag_missing if (flag_missing is not None and name in flag_keys) else missing
         codes = tuple(codes) + tuple(missing_by_variable.get(name, ()))
         numbers, n_missing, absurd = _numbers(raw[column], column, name, codes, decimal,
@@ -3614,6 +3738,9 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
                 time_zone=time_zone)
     return {
+        "header_line": next(iter(text.splitlines()[rows_before_header:]), "").strip(),
+        "under_header": [line.strip() for line in text.splitlines()[
+            rows_before_header + 1:rows_before_header + 1 + rows_after_header]],
         "header_rows": _header_rows(text, header, read, delimiter, rows_before_header,
                                     rows_after_header),
         "source": source, "encoding": used_encoding, "mapping": mapping,
@@ -3631,6 +3758,56 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                            if parsed.rounded_to_minute else {}),
                         **({"date_only": parsed.date_only} if parsed.date_only else {})},
     }
+
+
+def _later_file_layout(path: Path, text: str, first_header, delimiter: str,
+                       rows_before_header: int, rows_after_header: int, notes
+                       ) -> tuple[str, int, int, int]:
+    """``(text, rows_before_header, rows_after_header, lines borrowed)`` of a later file
+    that lacks the first file's title lines or header (:mod:`fluxpart.later_files`;
+    its name listed in `notes` under "titles" or "header"; layouts37: refused before);
+    the file's own where it lacks neither. `first_header`: the first file's header line
+    and the lines under it that rows_after_header skips."""
+    if first_header is None:
+        return text, rows_before_header, rows_after_header, 0
+    header, under = first_header
+    text_lines = text.splitlines()
+    if next(iter(text_lines[rows_before_header:]), "").strip() == header:
+        return text, rows_before_header, rows_after_header, 0
+    above = later_files.title_lines_lacking(text_lines, header, rows_before_header)
+    if above is not None:
+        notes.setdefault("titles", []).append(str(path))
+        own_under = [line.strip() for line in text_lines[above + 1:above + 1 + len(under)]]
+        # the units lines written into the first file only too: none under this header
+        return text, above, rows_after_header if own_under == under else 0, 0
+    if not later_files.headerless(text_lines, header, delimiter):
+        return text, rows_before_header, rows_after_header, 0
+    notes.setdefault("header", []).append(str(path))
+    end = re.search(r"\r\n|\r|\n", text)
+    return header + (end.group() if end else "\n") + text, 0, 0, 1
+
+
+def _later_files_warnings(notes: dict, first: dict, rows_before_header: int,
+                          delimiter: str) -> list:
+    """One warning for the later files read from their own header line and one for those
+    read under the first file's header (:func:`_later_file_layout`)."""
+    found = []
+    if notes.get("titles"):
+        found.append(
+            f"{len(notes['titles'])} input file(s) ({_file_list(notes['titles'])}) have the "
+            f"header line of {first['source']!r}, character for character, with fewer lines "
+            f"above it than [input] rows_before_header = {rows_before_header} (title lines "
+            "written into the first file only?): read from their header line (and without "
+            "units lines where none stands under it)")
+    if notes.get("header"):
+        width = len(later_files.cells(first["header_line"], delimiter))
+        found.append(
+            f"{len(notes['header'])} input file(s) ({_file_list(notes['header'])}) have no "
+            f"header line, their first line a record of the {width} fields the header of "
+            f"{first['source']!r} names (a header written into the first file only?): read "
+            "under that header, with no title or units lines; their line numbers as "
+            "written")
+    return found
 
 
 def _refuse_stated_otherwise(text: str, header: list, time_columns: tuple, delimiter: str,

@@ -322,6 +322,13 @@ _PHRASED_PLACE = _LazyPattern(
     r"|\b(?:time\s*stamps?|timestamps?|stamps?)\b[^.;]{0,20}?\b(centred|centered)\s+(?:on|in)\b"
     r"|\b(?:interval|period)\s+(midpoints?|mid-points?|centres|centers)\b)"
     r"(?![^;]*\d{4})")
+#: The place in an interval named by its length: "Date/time: start of 30-min block",
+#: "end of each 30 min average", "start of the half-hour period" (layouts37: a "block" of a
+#: stated length was left unread); a length or "averaging" before the noun, no date after.
+_LENGTH_PLACE = _LazyPattern(
+    r"\b(start|beginning|begin|end|middle|centre|center|midpoint)\s+of\s+(?:the\s+|each\s+)?"
+    r"(?:\d+[\s-]*(?:min(?:ute)?s?|h|hrs?|hours?)|half[\s-]*hour(?:ly)?|hourly|averaging)"
+    r"[\s-]+(?:block|interval|period|window|average|mean)s?\b(?![^;]*\d{4})")
 _OTHER_PLACE_WORDS = {
     "début": "start", "debut": "start", "inicio": "start", "comienzo": "start",
     "principio": "start", "inizio": "start", "fin": "end", "final": "end", "fine": "end",
@@ -423,7 +430,10 @@ _CLOCK_VALUE = _LazyPattern(r"(?:utc|gmt|gps|z|zulu|ut|tu|universal)(?:\s*time)?
 #: "Data logger time: UTC", "Time: UTC+00:00", "Standard time: UTC": a key ending in
 #: "time" followed by a clock and nothing else (since layouts27; a date or anything else
 #: after the key states nothing: "Export time: 2021-06-01 12:00 UTC")
-_TIME_KEY = _LazyPattern(r"\btime\s*[\]\)]?\s*[:=]\s*\(?\s*(?P<value>[^,;]*)")
+#: German keys too (layouts37: "Uhrzeit: MEZ" was left unread): "Uhrzeit", "Zeit"
+#: ("clock time", "time"; Duden (m)).
+_TIME_KEY = _LazyPattern(r"(?:\btime|\buhrzeit|\bzeit)\s*[\]\)]?\s*[:=]\s*\(?\s*"
+                         r"(?P<value>[^,;]*)")
 _IN_UTC = _LazyPattern(r"\b(?:times?|time\s*stamps?|timestamps?|stamps?|clock|dates?|zeitangaben"
                        r"|data|values|records|readings"   # "All values in UTC+2" (layouts35)
                        r"|recorded|logged"                # "Recorded in UTC+2" (layouts36)
@@ -519,7 +529,8 @@ def stated_place(text: str, cell: bool = False) -> str | None:
     found |= {places[m.group(1) or m.group(2)] for m in _GERMAN_PLACE.finditer(lowered)}
     for stamp in _STAMP_PLACE.finditer(lowered):          # "Timestamp at start of ..."
         found.add(places.get(stamp.group(1), stamp.group(1)))
-    for pattern in (_ROMANCE_PLACE, _RELATIVE_PLACE, _ENDING_AT, _PHRASED_PLACE):
+    for pattern in (_ROMANCE_PLACE, _RELATIVE_PLACE, _ENDING_AT, _PHRASED_PLACE,
+                    _LENGTH_PLACE):
         for m in pattern.finditer(lowered):                 # since layouts27 (36)
             word = re.sub(r"\s+", " ", next(group for group in m.groups() if group))
             found.add(_OTHER_PLACE_WORDS.get(word, word))

@@ -12,6 +12,7 @@ import gzip
 import zipfile
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 import pytest
 
@@ -241,14 +242,32 @@ def _decimal_comma_example(example, tmp_path, name, solar):
     return config
 
 
+def _assert_grouped_rg_read(config, example, digits):
+    """Since layouts37 thousands separators that cannot be a decimal mark are read: the
+    frame is the example's with Rg of 1000 W m-2 or more x 1.2 as written, the cells named."""
+    from fluxpart.io import read_site_config
+
+    frame, report = read_site_config(config).read()
+    plain, _ = read_site_config(example).read()
+    scaled = plain["rg"].to_numpy() * 1.2
+    written = np.array([float(f"{v:.{digits}f}") if v >= 1000 else np.nan for v in scaled])
+    expected = plain.copy()
+    expected["rg"] = np.where(scaled >= 1000, written, plain["rg"].to_numpy())
+    pd.testing.assert_frame_equal(frame, expected)
+    assert any("'solar_down' (rg)" in w and "thousands separators where they cannot be a "
+               "decimal mark" in w for w in report.warnings)
+
+
 @pytest.mark.parametrize(("written", "decimals"), [("{:,.1f}", True), ("{:,.0f}", False)])
-def test_thousands_separator_beside_decimal_comma_is_refused(example, tmp_path, capsys,
-                                                              written, decimals):
+def test_thousands_separator_beside_decimal_comma_is_read(example, tmp_path, written,
+                                                          decimals):
     """Rg written by a spreadsheet with digit grouping in a decimal-comma file ("1.034,1" or
     "1.034" for 1034 W m-2). "1.034" was read as 1.034 W m-2 without a word (the '.' taken
-    as a decimal point), "1.034,1" refused with the hint to list it as a missing code. The
-    convention: a decimal-comma locale groups thousands with '.', as German spreadsheets
-    write them (common practice)."""
+    as a decimal point), "1.034,1" refused with the hint to list it as a missing code;
+    then both were refused naming the separator; since layouts37 both are read (the
+    column writes its other decimals with commas, so its points cannot be decimal marks).
+    The convention: a decimal-comma locale groups thousands with '.', as German
+    spreadsheets write them (common practice)."""
     def solar(cell):
         value = float(cell) * 1.2
         if cell == "-9999" or abs(value) < 1000:
@@ -257,10 +276,7 @@ def test_thousands_separator_beside_decimal_comma_is_refused(example, tmp_path, 
         return text.replace(",", "_").replace(".", ",").replace("_", ".")
 
     config = _decimal_comma_example(example, tmp_path, f"grouped{decimals}.csv", solar)
-    assert main(["check", str(config)]) == 2
-    line = _one_error(capsys)
-    assert "'solar_down' (rg)" in line and "thousands separator" in line
-    assert "add it to [input] missing" not in line
+    _assert_grouped_rg_read(config, example, 1 if decimals else 0)
 
 
 def test_grouped_whole_numbers_beside_decimal_comma_columns_are_refused(example, tmp_path,
@@ -292,9 +308,10 @@ def test_decimal_points_in_a_decimal_comma_file_still_read(example, tmp_path):
     assert frame.equals(plain)
 
 
-def test_thousands_separator_beside_decimal_point_is_named(example, tmp_path, capsys):
-    """'1,034.1' in a semicolon file with decimal points (an English-locale spreadsheet) is
-    named as digit grouping, not met with 'add it to [input] missing'."""
+def test_thousands_separator_beside_decimal_point_is_read(example, tmp_path):
+    """'1,034.1' in a semicolon file with decimal points (an English-locale spreadsheet)
+    was named as digit grouping, not met with 'add it to [input] missing'; since
+    layouts37 read (a comma before the decimal point cannot be a decimal mark)."""
     lines = example.with_suffix(".csv").read_text().splitlines()
     column = lines[0].split(",").index("solar_down")
     rows = [lines[0].replace(",", ";")]
@@ -307,18 +324,17 @@ def test_thousands_separator_beside_decimal_point_is_named(example, tmp_path, ca
     data.write_text("\n".join(rows) + "\n")
     config = tmp_path / "points.toml"
     _configure(example, config, 'path = "points.csv"\ndelimiter = ";"')
-    assert main(["check", str(config)]) == 2
-    line = _one_error(capsys)
-    assert "'solar_down' (rg)" in line and "thousands separator" in line
+    _assert_grouped_rg_read(config, example, 1)
 
 
 @pytest.mark.parametrize("separator", ["'", "\u202f", " "])
-def test_thousands_separator_that_is_no_decimal_mark_is_named(example, tmp_path, capsys,
-                                                              separator):
+def test_thousands_separator_that_is_no_decimal_mark_is_read(example, tmp_path, separator):
     """'1'034.1' (Swiss spreadsheets) or '1 034.1' with a (narrow no-break) space: named as
-    digit grouping; "add it to [input] missing" would blank every Rg of 1000 W m-2 or more.
-    Outside fact: the apostrophe and the narrow no-break space (U+202F) as thousands
-    separators of Swiss and French number formats (Unicode CLDR (m))."""
+    digit grouping until layouts37 ("add it to [input] missing" would blank every Rg of
+    1000 W m-2 or more); now read, as such a separator is never a decimal mark. Outside
+    fact: the apostrophe and the narrow no-break space (U+202F) as thousands separators of
+    Swiss and French number formats (Unicode CLDR (m)); SI Brochure 5.4.4: digits grouped
+    in threes by a space (m)."""
     lines = example.with_suffix(".csv").read_text().splitlines()
     column = lines[0].split(",").index("solar_down")
     rows = [lines[0]]
@@ -328,10 +344,7 @@ def test_thousands_separator_that_is_no_decimal_mark_is_named(example, tmp_path,
             cells[column] = f"{float(cells[column]) * 1.2:,.1f}".replace(",", separator)
         rows.append(",".join(cells))
     config = _with_records(example, tmp_path, "grouped.csv", "\n".join(rows) + "\n")
-    assert main(["check", str(config)]) == 2
-    line = _one_error(capsys)
-    assert "'solar_down' (rg)" in line and "thousands separator" in line
-    assert "[input] missing" not in line
+    _assert_grouped_rg_read(config, example, 1)
 
 
 def test_zero_bytes_of_a_cut_write_are_named_in_one_short_line(example, tmp_path, capsys):
@@ -392,8 +405,10 @@ def test_column_named_with_a_look_alike_character_says_so(example, tmp_path, cap
 def test_header_repeated_mid_file_is_named_at_its_line(example, tmp_path, capsys, restart):
     """A logger restarting its program writes its title, header and units lines again
     into the same file; files saved with a byte-order mark (Unicode U+FEFF) and joined end
-    to end repeat the header behind one. Both are named at the repeated header's line
-    (were: the title line called a record cut short; the mark hid the repetition)."""
+    to end repeat the header behind one. Both were named at the repeated header's line
+    (before: the title line called a record cut short; the mark hid the repetition); since
+    layouts37 the repeated block is skipped and named, every record read (the joined
+    files' second copy of the records as exact duplicates, counted)."""
     lines = example.with_suffix(".csv").read_text().splitlines()
     if restart == "title_header_units":
         block = ["Tamsworth heath TH-2", lines[0], "-,umol m-2 s-1,W m-2,C,kPa,m s-1,C,%,-"]
@@ -407,15 +422,24 @@ def test_header_repeated_mid_file_is_named_at_its_line(example, tmp_path, capsys
     data.write_bytes(text.encode("utf-8"))
     config = tmp_path / "restart.toml"
     _configure(example, config, f'path = "restart.csv"\n{extra}')
-    assert main(["check", str(config)]) == 2
-    line = _one_error(capsys)
-    assert f"line {repeated} repeats the header line" in line and "restart.csv" in line
+    # read since layouts37: the same title, header and units lines are skipped and named;
+    # the joined files' records written twice are exact duplicates, dropped and counted
+    assert main(["check", str(config)]) == 1
+    shown = capsys.readouterr().out
+    if restart == "title_header_units":
+        assert ("the header line with its title and units lines written again 1 time(s) "
+                "among the records") in shown and "lines 5003-5005: skipped" in shown
+    else:
+        assert "written again 1 time(s) among the records" in shown
+        assert f"on line {repeated}: skipped" in shown
+        assert "4999 exact duplicate(s) within a file" in shown
 
 
-def test_grouped_integers_in_a_decimal_point_column_are_named(example, tmp_path, capsys):
+def test_grouped_integers_in_a_decimal_point_column_are_read(example, tmp_path):
     """'1,034' (no decimals, quoted as csv writers quote it) in a column written with
-    decimal points elsewhere is digit grouping: named as such, where the decimal-comma
-    hint would have led to reading 1034 W m-2 as 1.034."""
+    decimal points elsewhere is digit grouping: named as such until layouts37 (the
+    decimal-comma hint would have led to reading 1034 W m-2 as 1.034); now read, as the
+    column's own decimals show that its commas cannot be decimal marks."""
     lines = example.with_suffix(".csv").read_text().splitlines()
     column = lines[0].split(",").index("solar_down")
     rows = [lines[0]]
@@ -425,10 +449,7 @@ def test_grouped_integers_in_a_decimal_point_column_are_named(example, tmp_path,
             cells[column] = f'"{float(cells[column]) * 1.2:,.0f}"'
         rows.append(",".join(cells))
     config = _with_records(example, tmp_path, "grouped.csv", "\n".join(rows) + "\n")
-    assert main(["check", str(config)]) == 2
-    line = _one_error(capsys)
-    assert "'solar_down' (rg)" in line and "',' as thousands separator" in line
-    assert "decimal = \",\"" not in line
+    _assert_grouped_rg_read(config, example, 0)
 
 
 def test_typographic_minus_sign_reads_as_minus(example, tmp_path):

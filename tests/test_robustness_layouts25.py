@@ -192,16 +192,17 @@ def test_whitespace_file_with_empty_values_names_the_collapse(tmp_path):
     assert "empty cells between delimiters" not in message
 
 
-def test_comment_line_among_records_is_named(tmp_path):
+def test_comment_line_among_records_is_skipped_and_named(tmp_path):
     """A note written among the records ("# sensor cleaned"; '#' opens a comment in many
-    text formats, common practice): refused naming a comment line, not a record cut short
-    mid-number as before."""
+    text formats, common practice): refused as a record cut short mid-number before
+    layouts25, then refused naming a comment line; since layouts37 skipped (no record
+    starts with '#') and named in the warnings, every record read."""
     rows = ["stamp,co2_flux,us,sw,t_air,vpd"]
-    rows += [f"2021-06-01 {h:02d}:30,-1.5,0.31,120.0,14.2,6.1" for h in range(8)]
+    rows += [f"2021-06-01 {h // 2:02d}:{h % 2 * 30:02d},-1.5,0.31,120.0,14.2,6.1"
+             for h in range(1, 9)]
     rows.insert(4, "# sensor cleaned")
     path = tmp_path / "tower.csv"
     path.write_text("\n".join(rows) + "\n")
-    with pytest.raises(InputFileError) as caught:
-        _read(path)
-    assert "line 5" in str(caught.value) and "comment line" in str(caught.value)
-    assert "cut mid-number" not in str(caught.value)
+    table, report = _read(path)
+    assert len(table) == 8 and (table["nee"] == -1.5).all()
+    assert any("line 5: '# sensor cleaned'" in w and "skipped" in w for w in report.warnings)

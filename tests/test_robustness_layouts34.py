@@ -144,18 +144,23 @@ def test_a_block_of_comment_lines_ending_the_file_is_dropped_as_a_footer(tmp_pat
                "ending the file, a footer: dropped" in w for w in report.warnings)
 
 
-def test_comment_lines_among_the_records_stay_refused(tmp_path):
-    """A comment between records (a logger restart's note) is still refused, naming it:
-    only a block that ends the file is a footer."""
+def test_comment_lines_among_the_records_are_skipped_and_named(tmp_path):
+    """A comment between records (a logger restart's note) was refused, naming it, until
+    layouts37; now skipped where the file's notes share one mark that no record starts
+    with, named in the warnings, and every record read (known truth: the records as
+    written); the footer line is dropped as before."""
     names = ["co2_flux", "us", "sw", "t_air", "vpd"]
+    plain = _write(tmp_path / "plain.csv", names)
     path = _write(tmp_path / "notes.csv", names)
     lines = path.read_text(encoding="utf-8").splitlines()
     lines[400:400] = ["# logger restarted", "# program qm_v2"]
     path.write_text("\n".join(lines) + "\n# end of file\n", encoding="utf-8")
     mapping = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
-    with pytest.raises(InputFileError, match=r"line 401 \('# logger restarted'\).*a comment "
-                                             r"line among the records"):
-        _read(path, mapping)
+    expected, _ = _read(plain, mapping)
+    table, report = _read(path, mapping)
+    pd.testing.assert_frame_equal(table, expected)
+    assert any("lines 401-402: '# logger restarted'" in w for w in report.warnings)
+    assert any("'# end of file'" in w and "dropped" in w for w in report.warnings)
 
 
 # ------------------------------------------------- net radiation of a cloudy site as rg

@@ -1,0 +1,184 @@
+"""Lines among a table's records that are no records: the header written again after a
+logger restart, and notes written between the records.
+
+A logger that restarts its program (a power cut, a new program sent, a maintenance visit)
+writes its title, header and units lines again into the file it appends to; a data
+manager or the logger program notes a calibration, a visit or a power cut on a line of
+its own, opened by a comment mark. Both are read here as lines to skip, found by rules
+that cannot take a record for one:
+
+- a repeated header is the header line itself, character for character (blanks around it
+  aside), with the title lines above it and the units lines under it each equal to the
+  file's own (as many as ``rows_before_header`` and ``rows_after_header``), and with a
+  record (a line of the header's fields) or the header's own block before it, blank and
+  note lines aside (the notes judged as below): a header
+  after a line of another width (a page number, a title the settings do not count, a
+  record cut short by the power cut) is left to the reader's refusal;
+- a note line starts with a comment mark that no record of the file starts with, every
+  note among the records starting with the same mark (the file's own), and a record
+  follows it (a block ending the file is a footer, judged by the reader); a line of the
+  header's fields with a number after the first is a record, not a note; a mark that is
+  the delimiter, a whitespace-delimited file and a first field that is a spreadsheet error
+  ("#N/A", "#VALUE!") are never read as one.
+
+Pure functions of the text's lines; the reader empties the lines found (line numbers
+kept) and names them in its warnings.
+
+References
+----------
+Comment marks of languages: "#" (shell, Python, R), "//" and "/*" (C, C++, Java), "%"
+(MATLAB), "!" (Fortran 90), ";" (INI files) (each language's reference (m)). Spreadsheet
+error values "#N/A", "#VALUE!", "#DIV/0!", "#REF!", "#NAME?", "#NUM!", "#NULL!"
+(Microsoft Excel documentation (m)).
+"""
+
+import re
+
+#: Marks that open a comment line (as ``fluxpart.io``'s refusal names them).
+COMMENT_MARKS = ("#", "//", "/*", "%", "!", ";")
+#: A spreadsheet's error value as a first field: a record, not a note.
+_SPREADSHEET_ERROR = re.compile(r"\s*#(?:N/A|VALUE!|DIV/0!|REF!|NAME\?|NUM!|NULL!|GETTING_DATA)",
+                                re.IGNORECASE)
+#: Line breaks other than CR, LF and CR LF that ``str.splitlines`` counts: a text holding
+#: one is left alone (its line numbers would differ between the reader's two counts).
+_NUMBER = re.compile(r"[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?")
+_OTHER_BREAKS = re.compile("[\x0b\x0c\x1c\x1d\x1e\x85\u2028\u2029]")
+
+
+def _split(line: str, delimiter: str) -> list:
+    return line.split() if delimiter == "whitespace" else line.split(delimiter)
+
+
+def field_count(line: str, delimiter: str) -> int:
+    """Fields of a line split at `delimiter` (quotes ignored: only compared to the
+    header's width, which a quoted delimiter changes alike in every record)."""
+    return len(_split(line, delimiter))
+
+
+def _mark(line: str, marks: tuple) -> str | None:
+    stripped = line.lstrip()
+    if _SPREADSHEET_ERROR.match(stripped):
+        return None
+    return next((mark for mark in marks if stripped.startswith(mark)), None)
+
+
+#: A line opening with a comment mark (any line, blanks before the mark aside).
+_MARKED_LINE = re.compile(r"[\r\n][ \t]*(?:#|//|/\*|%|!|;)")
+
+
+def may_hold(text: str, rows_before_header: int, delimiter: str, note_mark=None) -> bool:
+    """False where the text can hold neither a repeated header nor a note line: its
+    header line occurs once and no line opens with a comment mark (C-speed passes, so
+    that the usual file costs no Python loop over its lines)."""
+    if delimiter == "whitespace" and not note_mark:
+        return False
+    start = 0
+    for _ in range(rows_before_header + 1):
+        found = re.compile(r"\r\n|\r|\n").search(text, start)
+        if found is None:
+            return False
+        header, start = text[start:found.start()].strip(), found.end()
+    if header and text.count(header, start) > 0:
+        return True
+    if note_mark:
+        return note_mark in text[start:]
+    marks = [mark for mark in COMMENT_MARKS if not mark.startswith(delimiter)]
+    return any(mark in text for mark in marks) and bool(_MARKED_LINE.search(text, start))
+
+
+def repeated_header_blocks(lines: list, rows_before_header: int, rows_after_header: int,
+                           delimiter: str) -> list:
+    """Blocks ``(first, last)`` (0-based line indices, inclusive) of the header written
+    again among the records with its title and units lines, by the rules of the module.
+
+    Returns [] where any repeat of the header line fails them (the reader then refuses,
+    naming the line), so that a file is read whole or not at all.
+    """
+    if (delimiter == "whitespace" or rows_before_header >= len(lines)
+            or any(_OTHER_BREAKS.search(line) for line in lines[:rows_before_header + 1])):
+        return []
+    header = lines[rows_before_header].strip()
+    if not header:
+        return []
+    titles = [line.strip() for line in lines[:rows_before_header]]
+    units = [line.strip() for line in
+             lines[rows_before_header + 1:rows_before_header + 1 + rows_after_header]]
+    first_data = rows_before_header + rows_after_header + 1
+    width = field_count(header, delimiter)
+    blocks = []
+    for index in range(first_data, len(lines)):
+        if lines[index].strip() != header:
+            continue
+        first, last = index - rows_before_header, index + rows_after_header
+        if (first < first_data or last >= len(lines)
+                or [line.strip() for line in lines[first:index]] != titles
+                or [line.strip() for line in lines[index + 1:last + 1]] != units):
+            return []
+        before = first - 1
+        marks = tuple(mark for mark in COMMENT_MARKS if not mark.startswith(delimiter))
+        while before >= 0 and (not lines[before].strip() or _mark(lines[before], marks)):
+            before -= 1              # blank lines and notes before it ("# power cut")
+        after_block = blocks and before == blocks[-1][1]
+        if not after_block and field_count(lines[before], delimiter) != width:
+            return []
+        blocks.append((first, last))
+    return blocks
+
+
+def note_lines(lines: list, first_data: int, delimiter: str, width: int, note_mark=None
+               ) -> tuple[list, str | None]:
+    """Indices (0-based) of the note lines among the records and their mark, by the rules
+    of the module; ``([], None)`` where there are none or they are not the file's own
+    (two marks, or a record starting with the mark: a line of the header's `width`
+    fields with a number after its first).
+
+    `note_mark` (``[input] note_mark``): the mark is the setting's, also where it opens
+    the delimiter or a whitespace-delimited file's line, and notes after the last record
+    are notes too; a record starting with it still leaves every note unread.
+    """
+    if delimiter == "whitespace" and not note_mark:
+        return [], None
+    marks = ((note_mark,) if note_mark else
+             tuple(mark for mark in COMMENT_MARKS if not mark.startswith(delimiter)))
+    found, record_marks, last_record = [], set(), None
+    for index in range(first_data, len(lines)):
+        line = lines[index]
+        if not line.strip():
+            continue
+        mark = _mark(line, marks)
+        if mark is not None and field_count(line, delimiter) == width and any(
+                _NUMBER.fullmatch(field.strip()) for field in _split(line, delimiter)[1:]):
+            record_marks.add(mark)                        # "#12,0.31,...": a record
+            last_record = index
+            continue
+        if mark is None:
+            last_record = index
+            first_field = next(iter(_split(line, delimiter)), "").lstrip()
+            if not _SPREADSHEET_ERROR.match(first_field):
+                record_marks.update(m for m in marks if first_field.startswith(m))
+        else:
+            found.append(index)
+    notes = [index for index in found if last_record is not None
+             and (note_mark or index < last_record)]
+    if not notes:
+        return [], None
+    marks_used = {_mark(lines[index], marks) for index in notes}
+    if len(marks_used) != 1 or marks_used & record_marks:
+        return [], None
+    return notes, marks_used.pop()
+
+
+def ranges(indices: list) -> str:
+    """0-based line indices as 1-based line numbers in runs: "12, 40-42"."""
+    runs, start, previous = [], None, None
+    for index in sorted(indices):
+        if start is None:
+            start = previous = index
+        elif index == previous + 1:
+            previous = index
+        else:
+            runs.append((start, previous))
+            start = previous = index
+    if start is not None:
+        runs.append((start, previous))
+    return ", ".join(f"{a + 1}" if a == b else f"{a + 1}-{b + 1}" for a, b in runs)
