@@ -413,6 +413,27 @@ def test_changed_code_fingerprint_is_named_as_likely_cause(copy, monkeypatch, ca
     assert "which no code change explains; the product's code differs too" in out
 
 
+def test_changed_code_is_not_named_as_the_cause_of_an_edited_input(copy, monkeypatch, capsys):
+    """An input file edited after the run, verified by another code version (an auditor's
+    install): nothing is recomputed, so no code explains the difference, yet the
+    environment line said "changed code is the likely cause of any difference" (review49).
+    The fingerprint is still named as a fact; the cause stays the verdict's own."""
+    import fluxpart.verify as module
+
+    real = module.code_fingerprint()
+    monkeypatch.setattr(module, "code_fingerprint", lambda: {**real, "sha256": "f" * 64})
+    lines = (copy / "tower.csv").read_text().splitlines(keepends=True)
+    fields = lines[1].rstrip("\n").split(",")
+    fields[1] = f"{float(fields[1]) + 1.0:.3f}"
+    lines[1] = ",".join(fields) + "\n"
+    (copy / "tower.csv").write_text("".join(lines))
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert "it is not the input file the result was computed from" in out
+    assert "nothing was recomputed" in out and "code fingerprint differs" in out
+    assert "likely cause" not in out
+
+
 def test_demo_result_is_regenerated_and_verified(tmp_path):
     """A `fluxpart demo` result is recomputed from its seed (few draws, for speed)."""
     frame, _ = demo.site_year(seed=0)
