@@ -137,6 +137,15 @@ def test_result_moved_alone_needs_input_and_uses_the_recorded_config(bundle, tmp
     assert main(["verify", str(alone), "--config", str(edited)]) == 1
 
 
+def _edit_first_value(path):
+    """Add 1 to the first record's first value column of a CSV input (its NEE)."""
+    lines = path.read_text().splitlines(keepends=True)
+    fields = lines[1].rstrip("\n").split(",")
+    fields[1] = f"{float(fields[1]) + 1.0:.3f}"
+    lines[1] = ",".join(fields) + "\n"
+    path.write_text("".join(lines))
+
+
 def test_another_input_or_config_is_named(copy, capsys):
     """One changed byte of the input, or another config given, exits 1 naming both hashes."""
     recorded = json.loads((copy / "out" / "manifest.json").read_text())["provenance"]
@@ -145,11 +154,7 @@ def test_another_input_or_config_is_named(copy, capsys):
     assert main(["verify", str(copy / "out"), "--config", str(other)]) == 1
     out = capsys.readouterr().out
     assert "site config" in out and recorded["site_config"]["sha256"] in out
-    lines = (copy / "tower.csv").read_text().splitlines(keepends=True)
-    fields = lines[1].rstrip("\n").split(",")
-    fields[1] = f"{float(fields[1]) + 1.0:.3f}"
-    lines[1] = ",".join(fields) + "\n"
-    (copy / "tower.csv").write_text("".join(lines))
+    _edit_first_value(copy / "tower.csv")
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
     assert "input file" in out and recorded["input"]["sha256"] in out
@@ -422,11 +427,7 @@ def test_changed_code_is_not_named_as_the_cause_of_an_edited_input(copy, monkeyp
 
     real = module.code_fingerprint()
     monkeypatch.setattr(module, "code_fingerprint", lambda: {**real, "sha256": "f" * 64})
-    lines = (copy / "tower.csv").read_text().splitlines(keepends=True)
-    fields = lines[1].rstrip("\n").split(",")
-    fields[1] = f"{float(fields[1]) + 1.0:.3f}"
-    lines[1] = ",".join(fields) + "\n"
-    (copy / "tower.csv").write_text("".join(lines))
+    _edit_first_value(copy / "tower.csv")
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
     assert "it is not the input file the result was computed from" in out
