@@ -830,8 +830,37 @@ def _temperature_label(column: str) -> str:
 # --------------------------------------------------------------------------- figures
 
 
+def declared_events(written) -> pd.DatetimeIndex:
+    """The declared events (``[processing] events``) that lie within the record.
+
+    Parameters
+    ----------
+    written : Written
+        The result folder as read for the report; the events come from its recorded
+        settings (local standard time, as the time series).
+
+    Returns
+    -------
+    pandas.DatetimeIndex
+        Each event's moment, sorted, from the first record's start to the last's; an
+        event outside the record cuts nothing (:func:`fluxpart.gapfill.event_notes`).
+    """
+    events = written.setting("events") or ()
+    index = written.timeseries.index
+    if isinstance(events, str):
+        events = (events,)
+    try:
+        moments = pd.DatetimeIndex([pd.Timestamp(event) for event in events]).sort_values()
+    except (TypeError, ValueError):                 # a hand-edited setting: draw none
+        return pd.DatetimeIndex([])
+    if not len(index):
+        return moments[:0]
+    return moments[(moments >= index[0]) & (moments <= index[-1])]
+
+
 def figure_daily(drawing, written, interval) -> Figure:
     daily = written.table("daily")
+    events = declared_events(written)
     figure = drawing.figure(10.0, 7.2, left=0.08, right=0.98, top=0.93, bottom=0.07,
                             hspace=0.28)
     axes = figure.subplots(3, 1)
@@ -862,6 +891,11 @@ def figure_daily(drawing, written, interval) -> Figure:
             _no_data(axis, "not in the daily table")
             continue
         axis.axhline(0.0, color="#777777", linewidth=0.6)
+        # a harvest or fire the user declared explains a step in the fluxes (review49:
+        # the figure showed the step without it)
+        for number, moment in enumerate(events):
+            axis.axvline(moment, color="#555555", linewidth=1.0, linestyle=":",
+                         label="declared event" if number == 0 and axis is axes[0] else None)
         shaded = any(column in banded for column, *_ in lines)
         axis.set_title(title + ("; shaded: 95 % band" if shaded else ""), loc="left")
         axis.set_ylabel(f"[{_CARBON_UNIT} d-1]")
@@ -873,8 +907,15 @@ def figure_daily(drawing, written, interval) -> Figure:
     figure.suptitle(f"Daily sums, {_span_text(written)}", x=0.08, ha="left", fontsize=10.5)
     band_text = ("shaded bands are ±1.96 times the daily 1-sigma written by the run"
                  if banded else "the run wrote no daily 1-sigma columns, so no bands are drawn")
+    moments = ", ".join(f"{e:%Y-%m-%d}" if e == e.normalize() else f"{e:%Y-%m-%d %H:%M}"
+                        for e in events)
+    # what the run did at them is the methods section's to say (older results did not cut
+    # the partitioning windows)
+    event_text = (f"; dotted vertical lines mark the declared events ({moments}: a harvest, "
+                  "cut, fire or the like; the methods below say how the run treated them)"
+                  if len(events) else "")
     caption = ("Look for the season of net uptake (NEE below zero) and for days where the two "
-               f"partitioning methods part ways; {band_text}.")
+               f"partitioning methods part ways; {band_text}{event_text}.")
     return Figure("daily_fluxes.png", drawing.png(figure), "Daily NEE, GPP and Reco", caption)
 
 

@@ -642,6 +642,40 @@ def test_light_response_timeline_keeps_the_windows_readable_and_names_the_bound(
         drawn.caption)
 
 
+def test_daily_figure_marks_the_declared_events_within_the_record(folder):
+    """A declared harvest or fire (``[processing] events``) cuts the gap filling and the
+    partitioning windows, and the daily fluxes step there, but the daily figure drew no
+    mark (review49). Now each event within the record is a dotted vertical line on every
+    panel, named in the NEE panel's legend and in the caption; one outside the record
+    (a mistyped year, which the run warns about) is not drawn. The demo declares none."""
+    written = read_written(folder["directory"])
+    interval = 30
+    assert not len(figures.declared_events(written))
+
+    def daily_of(written):
+        drawing = figures.Drawing()
+        made = []
+        draw = drawing.figure
+        drawing.figure = lambda *a, **k: made.append(draw(*a, **k)) or made[-1]
+        with drawing.mpl.rc_context():
+            drawn = figures.figure_daily(drawing, written, interval)
+        return drawn, made[0].axes
+
+    def vertical(axis):
+        return sorted(pd.Timestamp(line.get_xdata()[0]) for line in axis.lines
+                      if line.get_linestyle() == ":")
+
+    drawn, axes = daily_of(written)
+    assert "declared events" not in drawn.caption and not any(map(vertical, axes))
+    written.config["events"] = ["2021-07-20", "2021-09-01T12:00", "1999-05-01"]
+    drawn, axes = daily_of(written)
+    expected = [pd.Timestamp("2021-07-20"), pd.Timestamp("2021-09-01 12:00")]
+    assert [vertical(axis) for axis in axes] == [expected] * 3
+    assert "declared event" in [t.get_text() for t in axes[0].get_legend().get_texts()]
+    assert "declared events (2021-07-20, 2021-09-01 12:00: a harvest" in drawn.caption
+    assert "1999" not in drawn.caption
+
+
 def test_the_provenance_table_reads_as_words_not_python(folder):
     """The clock check and demo rows of the provenance table are plain words with the
     values the manifest records (read back with the standard library's json), not a
