@@ -589,6 +589,17 @@ def test_light_response_window_parameters_show_their_units(folder):
         assert lines["β0"].endswith(" µmol m-2 s-1") and lines["Rref"].endswith(" µmol m-2 s-1")
 
 
+def _painted(painter, written, *args):
+    """A figure painter's Figure and the axes of the matplotlib figure it drew."""
+    drawing = figures.Drawing()
+    made = []
+    draw = drawing.figure
+    drawing.figure = lambda *a, **k: made.append(draw(*a, **k)) or made[-1]
+    with drawing.mpl.rc_context():
+        drawn = painter(drawing, written, *args)
+    return drawn, made[0].axes
+
+
 def test_light_response_timeline_keeps_the_windows_readable_and_names_the_bound(folder):
     """The β0 timeline drew the bound daytime_beta0_max (250 µmol m-2 s-1, Lasslop et
     al. 2010 (m)) as an unlabelled dashed line and scaled its axis to it, so a site whose
@@ -611,13 +622,7 @@ def test_light_response_timeline_keeps_the_windows_readable_and_names_the_bound(
     assert np.nanmax(beta0) == bound
 
     def timeline_of(written):
-        drawing = figures.Drawing()
-        made = []
-        draw = drawing.figure
-        drawing.figure = lambda *a, **k: made.append(draw(*a, **k)) or made[-1]
-        with drawing.mpl.rc_context():
-            drawn = figures.figure_light_response(drawing, written)
-        axes = made[0].axes
+        drawn, axes = _painted(figures.figure_light_response, written)
         return drawn, axes, next(a for a in axes if a.get_title(loc="left").startswith(
             "Light-response windows"))
 
@@ -653,13 +658,7 @@ def test_daily_figure_marks_the_declared_events_within_the_record(folder):
     assert not len(figures.declared_events(written))
 
     def daily_of(written):
-        drawing = figures.Drawing()
-        made = []
-        draw = drawing.figure
-        drawing.figure = lambda *a, **k: made.append(draw(*a, **k)) or made[-1]
-        with drawing.mpl.rc_context():
-            drawn = figures.figure_daily(drawing, written, interval)
-        return drawn, made[0].axes
+        return _painted(figures.figure_daily, written, interval)
 
     def vertical(axis):
         return sorted(pd.Timestamp(line.get_xdata()[0]) for line in axis.lines
