@@ -2209,6 +2209,12 @@ class _SiteProgress:
 def _summary(report: BatchReport) -> str:
     lines = [f"fluxpart batch: {len(report.outcomes)} site(s): {report.written} processed, "
              f"{report.skipped} up to date (skipped), {report.failed} failed"]
+    # why a site whose folder existed was processed again: a rerun that printed "3
+    # processed" after an upgrade or an edit left the user guessing (review49)
+    again = [f"{outcome.key} ({outcome.note})" for outcome in report.outcomes
+             if outcome.status == "written" and outcome.note not in ("", "new")]
+    if again:
+        lines.append(f"processed again, the folder not up to date: {'; '.join(again)}")
     if len(report.network):
         columns = [c for c in _SUMMARY_COLUMNS if c in report.network.columns]
         lines += ["", "Annual budgets [g C m-2; NEE < 0 is net uptake; nee_ci95_low/high: "

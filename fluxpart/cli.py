@@ -396,7 +396,14 @@ def _command_check(args) -> int:
     from .settings_notes import ignored_settings
 
     problems += ignored_settings(config)
-    print(format_check(site_config.site, report, table, problems=problems))
+    text = format_check(site_config.site, report, table, problems=problems)
+    if report.unit_refusals and len(problems) + len(report.warnings) > len(report.unit_refusals):
+        # a temperature read in the wrong unit is out of range everywhere, so every stage
+        # finds no night records and the list went on to advise e0_fallback (review49)
+        text += ("  note: the run stops at the unit mix-up named above; the other problems "
+                 "were judged on the values as read in that unit and may follow from it "
+                 "alone: set the unit and run check again\n")
+    print(text)
     print(_format_clock(verdict))
     if counts is not None:
         print("\nscreening of NEE (records per first reason, before the u* filter)")

@@ -830,8 +830,37 @@ def _temperature_label(column: str) -> str:
 # --------------------------------------------------------------------------- figures
 
 
+def declared_events(written) -> pd.DatetimeIndex:
+    """The declared events (``[processing] events``) that lie within the record.
+
+    Parameters
+    ----------
+    written : Written
+        The result folder as read for the report; the events come from its recorded
+        settings (local standard time, as the time series).
+
+    Returns
+    -------
+    pandas.DatetimeIndex
+        Each event's moment, sorted, from the first record's start to the last's; an
+        event outside the record cuts nothing (:func:`fluxpart.gapfill.event_notes`).
+    """
+    events = written.setting("events") or ()
+    index = written.timeseries.index
+    if isinstance(events, str):
+        events = (events,)
+    try:
+        moments = pd.DatetimeIndex([pd.Timestamp(event) for event in events]).sort_values()
+    except (TypeError, ValueError):                 # a hand-edited setting: draw none
+        return pd.DatetimeIndex([])
+    if not len(index):
+        return moments[:0]
+    return moments[(moments >= index[0]) & (moments <= index[-1])]
+
+
 def figure_daily(drawing, written, interval) -> Figure:
     daily = written.table("daily")
+    events = declared_events(written)
     figure = drawing.figure(10.0, 7.2, left=0.08, right=0.98, top=0.93, bottom=0.07,
                             hspace=0.28)
     axes = figure.subplots(3, 1)
@@ -862,6 +891,11 @@ def figure_daily(drawing, written, interval) -> Figure:
             _no_data(axis, "not in the daily table")
             continue
         axis.axhline(0.0, color="#777777", linewidth=0.6)
+        # a harvest or fire the user declared explains a step in the fluxes (review49:
+        # the figure showed the step without it)
+        for number, moment in enumerate(events):
+            axis.axvline(moment, color="#555555", linewidth=1.0, linestyle=":",
+                         label="declared event" if number == 0 and axis is axes[0] else None)
         shaded = any(column in banded for column, *_ in lines)
         axis.set_title(title + ("; shaded: 95 % band" if shaded else ""), loc="left")
         axis.set_ylabel(f"[{_CARBON_UNIT} d-1]")
@@ -873,8 +907,15 @@ def figure_daily(drawing, written, interval) -> Figure:
     figure.suptitle(f"Daily sums, {_span_text(written)}", x=0.08, ha="left", fontsize=10.5)
     band_text = ("shaded bands are ±1.96 times the daily 1-sigma written by the run"
                  if banded else "the run wrote no daily 1-sigma columns, so no bands are drawn")
+    moments = ", ".join(f"{e:%Y-%m-%d}" if e == e.normalize() else f"{e:%Y-%m-%d %H:%M}"
+                        for e in events)
+    # what the run did at them is the methods section's to say (older results did not cut
+    # the partitioning windows)
+    event_text = (f"; dotted vertical lines mark the declared events ({moments}: a harvest, "
+                  "cut, fire or the like; the methods below say how the run treated them)"
+                  if len(events) else "")
     caption = ("Look for the season of net uptake (NEE below zero) and for days where the two "
-               f"partitioning methods part ways; {band_text}.")
+               f"partitioning methods part ways; {band_text}{event_text}.")
     return Figure("daily_fluxes.png", drawing.png(figure), "Daily NEE, GPP and Reco", caption)
 
 
@@ -1682,6 +1723,38 @@ def _light_windows(parameters: pd.DataFrame, states: pd.DataFrame, wanted: int =
     return fitted.loc[picks]
 
 
+def beta0_scale(beta0: np.ndarray, bound) -> tuple[float, float | None, bool]:
+    """The top of the β0 timeline's axis, the bound of β0 and whether to draw it.
+
+    Parameters
+    ----------
+    beta0 : numpy.ndarray
+        β0 of each light-response window [µmol m-2 s-1] (NaN where none was fitted).
+    bound : float or None
+        The run's ``daytime_beta0_max`` [µmol m-2 s-1], as the manifest records it.
+
+    Returns
+    -------
+    top : float
+        The largest value the axis must show [µmol m-2 s-1]: the largest β0, or the
+        bound where it is drawn.
+    bound : float or None
+        The bound as a float, None where the manifest records none.
+    drawn : bool
+        True where the bound lies within twice the largest β0, so that drawing it
+        leaves the windows' β0 readable; a bound far above them (250 against the 2-20
+        of a grassland) squeezed every window into the bottom tenth of the axis
+        (before review49), and is named in the title instead.
+    """
+    bound = float(bound) if isinstance(bound, (int, float)) and np.isfinite(bound) else None
+    fitted = beta0[np.isfinite(beta0)]
+    largest = float(fitted.max()) if fitted.size and fitted.max() > 0 else None
+    if largest is None:
+        return (bound if bound is not None else 1.0), bound, bound is not None
+    drawn = bound is not None and bound <= 2.0 * largest
+    return (max(largest, bound) if drawn else largest), bound, drawn
+
+
 def figure_light_response(drawing, written) -> Figure:
     if "daytime" in unfitted_methods(written):
         return _unfitted_figure(drawing, "light_response.png", "Light-response windows",
@@ -1717,19 +1790,21 @@ def figure_light_response(drawing, written) -> Figure:
         twin.set_ylabel("α [µmol J-1]", color=_GREEN)
         drawing.few_ticks(twin, x=0, y=4)
         twin.grid(False)
-        bound = written.setting("daytime_beta0_max")
-        if isinstance(bound, (int, float)):
-            timeline.axhline(float(bound), color=_VERMILLION, linewidth=0.8, linestyle="--")
-        top = np.nanmax(np.append(parameters["beta0"].to_numpy(dtype=float),
-                                  float(bound) if isinstance(bound, (int, float)) else 1.0))
+        top, bound, drawn = beta0_scale(parameters["beta0"].to_numpy(dtype=float),
+                                        written.setting("daytime_beta0_max"))
+        if drawn:
+            timeline.axhline(bound, color=_VERMILLION, linewidth=0.8, linestyle="--",
+                             label=f"β0 upper bound ({bound:g})")
         timeline.set_ylim(-0.05 * top, 1.45 * top)
         timeline.set_ylabel(f"β0 [{_FLUX_UNIT}]", fontsize=8)
         drawing.few_ticks(timeline, x=0, y=4)
-        timeline.legend(loc="upper left", ncols=4, fontsize=7.5, frameon=True,
-                        framealpha=0.9, edgecolor="#cccccc")
+        timeline.legend(loc="upper left", ncols=5 if drawn else 4, fontsize=7.5,
+                        frameon=True, framealpha=0.9, edgecolor="#cccccc")
         drawing.date_axis(timeline, ticks=13)
-        timeline.set_title("Light-response windows: β0 per window (markers by status), α dotted",
-                           loc="left")
+        above = (f"; its upper bound, {bound:g} {_FLUX_UNIT}, lies above the axis"
+                 if bound is not None and not drawn else "")
+        timeline.set_title("Light-response windows: β0 per window (markers by status), "
+                           f"α dotted{above}", loc="left")
     else:
         _no_data(timeline, "no light-response parameter table in this result folder")
     colormap = drawing.mpl.colormaps["cividis"]
@@ -1793,10 +1868,13 @@ def figure_light_response(drawing, written) -> Figure:
         figure.colorbar(scatter, cax=bar_axis).set_label("VPD [hPa]")
     counts = states["state"].value_counts() if len(states) else pd.Series(dtype=int)
     tally = ", ".join(f"{int(counts[s])} {s}" for s in _STATE_STYLE if s in counts.index)
-    caption = ("Red triangles and red-framed panels are windows whose fit sits at a parameter "
-               "bound, orange squares windows refitted with Rref fixed at their night "
-               "respiration, grey crosses rejected "
-               f"ones ({tally or 'no windows'}); many flagged windows in the growing season "
+    # the example panels are framed in red for every window not plainly accepted (at a
+    # bound or replaced): the caption said red frames meant a bound only (before review49)
+    caption = ("Red triangles are windows whose fit sits at a parameter bound, orange squares "
+               "windows refitted with Rref fixed at their night respiration, grey crosses "
+               f"rejected ones ({tally or 'no windows'}); an example panel framed and titled "
+               "in red shows a window that is not plainly accepted (at a bound or replaced), "
+               "with the reason in its title; many flagged windows in the growing season "
                "make the daytime method's GPP less trustworthy there (model: Lasslop et al. "
                f"2010, VPD limit above {LASSLOP_VPD0_HPA:g} hPa).")
     return Figure("light_response.png", drawing.png(figure), "Light-response windows", caption)

@@ -97,7 +97,10 @@ _TIMESERIES = {
     "is_night": ("1", "night record: rg below night_rg_threshold (potential radiation 0 where "
                  "rg is missing)"),
     "rejection_reason": ("", f"screening outcome of the record's NEE: {_REASONS_TEXT}"),
-    "ustar_threshold": ("m s-1", "u* threshold applied to this record (its year's central value)"),
+    "ustar_threshold": ("m s-1", "u* threshold applied to this record: its calendar year's "
+                        "central value, or its season's own where that year's seasons clearly "
+                        "differ and the season's is higher (ustar_distinct_seasons = "
+                        "own_threshold)"),
     "nee_measured": (FLUX, "NEE of CO2 after screening and the u* filter: the values gap filling "
                      "and partitioning may use; positive = release"),
     "nee_filled": (FLUX, "gap-filled net ecosystem exchange of CO2 (measured where available); "

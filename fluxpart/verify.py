@@ -853,8 +853,11 @@ def _environment(manifest: dict) -> tuple[list[str], bool]:
     if code_changed:
         out.append(f"code fingerprint differs: the result was written by fluxpart "
                    f"{code.get('version')} with code {str(code.get('sha256'))[:16]}..., this is "
-                   f"fluxpart {now['version']} with code {now['sha256'][:16]}...; changed code "
-                   "is the likely cause of any difference")
+                   f"fluxpart {now['version']} with code {now['sha256'][:16]}..."
+                   # the verdict's "likely cause:" line names the code where values differ;
+                   # this line said so of "any difference", also beside an edited input
+                   # file from which nothing was recomputed (review49)
+                   )
     differing = platform_differences(platform, platform_record())
     if differing:
         out.append("platform differs in " + "; ".join(differing))

@@ -284,6 +284,7 @@ def test_batch_is_byte_identical_to_fluxpart_run(towers, tmp_path, capsys):
     assert main(["batch", str(sites), "--quiet"]) == 0
     printed = capsys.readouterr().out
     assert "3 processed, 0 up to date (skipped), 0 failed" in printed
+    assert "processed again" not in printed          # new folders need no reason
     assert "network_daily/, failures.parquet)" in printed      # a list, commas between
     out = tmp_path / "network-output"
     for key, config in configs.items():
@@ -393,10 +394,14 @@ def test_bad_site_fails_alone_and_reruns_skip(towers, tmp_path, cluster, capsys)
     by_key = {o.key: o for o in report.outcomes}
     assert (by_key["tower1"].status, by_key["tower1"].note) == ("written",
                                                                "site config changed")
+    # the summary says why (review49: a rerun printed "1 processed" and no reason)
+    assert ("processed again, the folder not up to date: tower1 (site config changed)"
+            in batch._summary(report).splitlines())
     assert by_key["tower0"].status == by_key["tower2"].status == "skipped"
 
     report = batch.run_batch(sites, scheduler=cluster.scheduler_address, force=True)
     assert (report.written, report.skipped, report.failed) == (3, 0, 1)
+    assert "tower0 (forced); tower1 (forced); tower2 (forced)" in batch._summary(report)
     forced = _snapshot(out)
     assert sorted(forced) == sorted(first)
     for name, (data, _) in first.items():                 # same input: the same bytes

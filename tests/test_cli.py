@@ -98,10 +98,28 @@ def test_unit_mixup_listed_by_check_and_refused_by_run(example, tmp_path, capsys
     assert main(["check", str(example)]) == 1
     out = capsys.readouterr().out
     assert 'vpd = "kPa"' in out and "(run stops)" in out
+    assert "unit mix-up named above" not in out        # the refusal is the only problem
     assert main(["run", str(example), "--out", str(tmp_path / "out"), "--quiet"]) == 2
     err = capsys.readouterr().err
     assert err.startswith("error: column 'vpd_kpa'") and 'vpd = "kPa"' in err
     assert not (tmp_path / "out").exists()
+
+
+def test_check_says_the_problems_after_a_unit_mix_up_may_follow_from_it(example, capsys):
+    """Air temperature in °C declared as K reads as about -265 °C (0 °C = 273.15 K, SI):
+    `check` named the unit, then E0, Rref and the u* threshold as problems of their own
+    (no night records spanning 5 K: "set [processing] e0_fallback"), which all follow
+    from the unit. A note now says so after the list (review49); a refusal listed alone
+    has none (test_unit_mixup_listed_by_check_and_refused_by_run)."""
+    example.write_text(example.read_text().replace('vpd = "kPa"', 'vpd = "kPa"\ntair = "K"'))
+    assert main(["check", str(example)]) == 1
+    out = capsys.readouterr().out
+    listed = out.split("problems found (", 1)[1].split("\n\n", 1)[0].splitlines()
+    assert 'tair = "°C"' in listed[1] and "(run stops)" in listed[1]
+    assert any("e0_fallback" in line for line in listed)
+    assert listed[-1] == ("  note: the run stops at the unit mix-up named above; the other "
+                          "problems were judged on the values as read in that unit and may "
+                          "follow from it alone: set the unit and run check again")
 
 
 def test_check_names_a_wrong_utc_offset_and_run_refuses_it(example, tmp_path, capsys):

@@ -589,6 +589,92 @@ def test_light_response_window_parameters_show_their_units(folder):
         assert lines["β0"].endswith(" µmol m-2 s-1") and lines["Rref"].endswith(" µmol m-2 s-1")
 
 
+def _painted(painter, written, *args):
+    """A figure painter's Figure and the axes of the matplotlib figure it drew."""
+    drawing = figures.Drawing()
+    made = []
+    draw = drawing.figure
+    drawing.figure = lambda *a, **k: made.append(draw(*a, **k)) or made[-1]
+    with drawing.mpl.rc_context():
+        drawn = painter(drawing, written, *args)
+    return drawn, made[0].axes
+
+
+def test_light_response_timeline_keeps_the_windows_readable_and_names_the_bound(folder):
+    """The β0 timeline drew the bound daytime_beta0_max (250 µmol m-2 s-1, Lasslop et
+    al. 2010 (m)) as an unlabelled dashed line and scaled its axis to it, so a site whose
+    windows saturate at 2-20 µmol m-2 s-1 (an invented moorland site-year) had every
+    marker in the bottom tenth of the axis (review49). Now a bound beyond twice the
+    largest β0 is named in the title and the axis follows the windows; a bound near them
+    (the demo's windows reach it) is drawn and named in the legend. The caption says that red frames mark every window not plainly
+    accepted, as the panels are drawn (replaced windows too), not a bound only."""
+    from matplotlib.colors import to_hex
+
+    # the pure rule, on invented numbers
+    assert figures.beta0_scale(np.array([2.0, 18.0, np.nan]), 250.0) == (18.0, 250.0, False)
+    assert figures.beta0_scale(np.array([60.0, 140.0]), 250.0) == (250.0, 250.0, True)
+    assert figures.beta0_scale(np.array([np.nan]), 250.0) == (250.0, 250.0, True)
+    assert figures.beta0_scale(np.array([5.0]), None) == (5.0, None, False)
+    # the demo folder: some windows reach the bound, which is drawn and named in the legend
+    written = read_written(folder["directory"])
+    beta0 = written.table("parameters_daytime")["beta0"].to_numpy(dtype=float)
+    bound = float(written.setting("daytime_beta0_max"))
+    assert np.nanmax(beta0) == bound
+
+    def timeline_of(written):
+        drawn, axes = _painted(figures.figure_light_response, written)
+        return drawn, axes, next(a for a in axes if a.get_title(loc="left").startswith(
+            "Light-response windows"))
+
+    drawn, axes, timeline = timeline_of(written)
+    assert timeline.get_ylim()[1] >= bound
+    assert f"β0 upper bound ({bound:g})" in [t.get_text() for t in
+                                             timeline.get_legend().get_texts()]
+    # every example panel framed in red is a window that is not plainly accepted, and the
+    # caption says so for replaced windows too
+    framed = [a for a in axes[2:] if a.get_visible() and a.get_title(loc="left")
+              and to_hex(a.spines["left"].get_edgecolor()).lower() == "#d55e00"]
+    assert all("replaced" in a.get_title(loc="left") or "at bound" in a.get_title(loc="left")
+               for a in framed)
+    # the same windows under a bound forty times the largest β0: the axis follows them
+    written.config["daytime_beta0_max"] = 40 * bound
+    _, _, timeline = timeline_of(written)
+    assert bound <= timeline.get_ylim()[1] < 2 * bound
+    assert (f"upper bound, {40 * bound:g} µmol m-2 s-1, lies above the axis"
+            in timeline.get_title(loc="left"))
+    assert "not plainly accepted (at a bound or replaced)" in drawn.caption
+    assert "red-framed panels are windows whose fit sits at a parameter bound" not in (
+        drawn.caption)
+
+
+def test_daily_figure_marks_the_declared_events_within_the_record(folder):
+    """A declared harvest or fire (``[processing] events``) cuts the gap filling and the
+    partitioning windows, and the daily fluxes step there, but the daily figure drew no
+    mark (review49). Now each event within the record is a dotted vertical line on every
+    panel, named in the NEE panel's legend and in the caption; one outside the record
+    (a mistyped year, which the run warns about) is not drawn. The demo declares none."""
+    written = read_written(folder["directory"])
+    interval = 30
+    assert not len(figures.declared_events(written))
+
+    def daily_of(written):
+        return _painted(figures.figure_daily, written, interval)
+
+    def vertical(axis):
+        return sorted(pd.Timestamp(line.get_xdata()[0]) for line in axis.lines
+                      if line.get_linestyle() == ":")
+
+    drawn, axes = daily_of(written)
+    assert "declared events" not in drawn.caption and not any(map(vertical, axes))
+    written.config["events"] = ["2021-07-20", "2021-09-01T12:00", "1999-05-01"]
+    drawn, axes = daily_of(written)
+    expected = [pd.Timestamp("2021-07-20"), pd.Timestamp("2021-09-01 12:00")]
+    assert [vertical(axis) for axis in axes] == [expected] * 3
+    assert "declared event" in [t.get_text() for t in axes[0].get_legend().get_texts()]
+    assert "declared events (2021-07-20, 2021-09-01 12:00: a harvest" in drawn.caption
+    assert "1999" not in drawn.caption
+
+
 def test_the_provenance_table_reads_as_words_not_python(folder):
     """The clock check and demo rows of the provenance table are plain words with the
     values the manifest records (read back with the standard library's json), not a

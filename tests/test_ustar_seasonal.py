@@ -114,6 +114,11 @@ def test_threshold_runs_put_the_seasons_in_the_central_run_and_its_scenarios():
     assert runs["ustar_p84"][july] == pytest.approx(0.38)
     assert runs["ustar_year"] == pytest.approx(year_runs["central"])
     assert runs["central"][index.month == 1] == pytest.approx(0.24)    # floor: the year's
+    # the central run is the time series' ustar_threshold column, whose description said
+    # "(its year's central value)" while July held the season's 0.37 (review49)
+    from fluxpart.schema import describe
+    described = describe("timeseries", "ustar_threshold")[1]
+    assert "season's own" in described and "ustar_distinct_seasons" in described
 
     kept = ustar_seasonal.threshold_runs(index, 50.0, table, year_runs, contrast,
                                          "uncertainty_only")

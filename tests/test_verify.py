@@ -137,6 +137,15 @@ def test_result_moved_alone_needs_input_and_uses_the_recorded_config(bundle, tmp
     assert main(["verify", str(alone), "--config", str(edited)]) == 1
 
 
+def _edit_first_value(path):
+    """Add 1 to the first record's first value column of a CSV input (its NEE)."""
+    lines = path.read_text().splitlines(keepends=True)
+    fields = lines[1].rstrip("\n").split(",")
+    fields[1] = f"{float(fields[1]) + 1.0:.3f}"
+    lines[1] = ",".join(fields) + "\n"
+    path.write_text("".join(lines))
+
+
 def test_another_input_or_config_is_named(copy, capsys):
     """One changed byte of the input, or another config given, exits 1 naming both hashes."""
     recorded = json.loads((copy / "out" / "manifest.json").read_text())["provenance"]
@@ -145,11 +154,7 @@ def test_another_input_or_config_is_named(copy, capsys):
     assert main(["verify", str(copy / "out"), "--config", str(other)]) == 1
     out = capsys.readouterr().out
     assert "site config" in out and recorded["site_config"]["sha256"] in out
-    lines = (copy / "tower.csv").read_text().splitlines(keepends=True)
-    fields = lines[1].rstrip("\n").split(",")
-    fields[1] = f"{float(fields[1]) + 1.0:.3f}"
-    lines[1] = ",".join(fields) + "\n"
-    (copy / "tower.csv").write_text("".join(lines))
+    _edit_first_value(copy / "tower.csv")
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
     assert "input file" in out and recorded["input"]["sha256"] in out
@@ -411,6 +416,23 @@ def test_changed_code_fingerprint_is_named_as_likely_cause(copy, monkeypatch, ca
     out = capsys.readouterr().out
     assert "likely cause: daily changed after it was written" in out
     assert "which no code change explains; the product's code differs too" in out
+
+
+def test_changed_code_is_not_named_as_the_cause_of_an_edited_input(copy, monkeypatch, capsys):
+    """An input file edited after the run, verified by another code version (an auditor's
+    install): nothing is recomputed, so no code explains the difference, yet the
+    environment line said "changed code is the likely cause of any difference" (review49).
+    The fingerprint is still named as a fact; the cause stays the verdict's own."""
+    import fluxpart.verify as module
+
+    real = module.code_fingerprint()
+    monkeypatch.setattr(module, "code_fingerprint", lambda: {**real, "sha256": "f" * 64})
+    _edit_first_value(copy / "tower.csv")
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert "it is not the input file the result was computed from" in out
+    assert "nothing was recomputed" in out and "code fingerprint differs" in out
+    assert "likely cause" not in out
 
 
 def test_demo_result_is_regenerated_and_verified(tmp_path):
