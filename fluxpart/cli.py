@@ -81,8 +81,11 @@ def _format_annual(annual) -> str:
                     and math.isfinite(float(low)) and math.isfinite(float(high))):
                 interval = (f"; 95 % interval {-float(high) * T_CO2_HA_PER_G_C_M2:.2f} to "
                             f"{-float(low) * T_CO2_HA_PER_G_C_M2:.2f}")
+            # a negative uptake is a release: said in words, as the report does (review49)
+            source = "a net release; " if row["net_uptake_t_co2_per_ha"] < 0 else ""
             lines.append(f"  {year}: {row['net_uptake_t_co2_per_ha']:.2f} ± "
-                         f"{row['net_uptake_t_co2_per_ha_uncertainty']:.2f} (1 sigma{interval}; "
+                         f"{row['net_uptake_t_co2_per_ha_uncertainty']:.2f} ({source}1 sigma"
+                         f"{interval}; "
                          f"u* threshold {row['ustar_threshold']:.3f} m s-1{partial})")
         from .manifest import NEE_SCOPE
 

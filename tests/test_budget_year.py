@@ -260,7 +260,7 @@ def test_cli_net_uptake_of_a_partial_year_is_not_called_a_rate_per_year():
         "ustar_threshold": [0.158, 0.2, 0.16]}, index=pd.Index([2021, 2022, 2023], name="year"))
     lines = _format_annual(annual).splitlines()
     assert "  2021: 8.84 ± 0.30 (1 sigma; u* threshold 0.158 m s-1)" in lines
-    assert ("  2022: -0.52 ± 0.05 (1 sigma; u* threshold 0.200 m s-1; partial year, 1.0 "
+    assert ("  2022: -0.52 ± 0.05 (a net release; 1 sigma; u* threshold 0.200 m s-1; partial year, 1.0 "
             "months: not an annual total)") in lines
     assert ("  2023: 8.43 ± 0.30 (1 sigma; u* threshold 0.160 m s-1; 96 records unfilled: "
             "not an annual total)") in lines

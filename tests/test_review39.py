@@ -128,7 +128,9 @@ def test_run_prints_the_95_interval_of_the_tonnes_beside_their_sigma():
         index=pd.Index([2013], name="year"))
     lines = _format_annual(annual).splitlines()
     low, high = -127.2 * T_PER_G, -86.4 * T_PER_G
-    assert (f"  2013: {-106.8 * T_PER_G:.2f} ± {10.4 * T_PER_G:.2f} (1 sigma; 95 % interval "
+    # a negative uptake is named a release in words (review49: "-6.04" read as uptake)
+    assert (f"  2013: {-106.8 * T_PER_G:.2f} ± {10.4 * T_PER_G:.2f} (a net release; 1 sigma; "
+            f"95 % interval "
             f"{low:.2f} to {high:.2f}; u* threshold 0.315 m s-1)") in lines
     assert f"{low:.2f} to {high:.2f}" == "-4.66 to -3.17"
 
