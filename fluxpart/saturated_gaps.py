@@ -250,6 +250,8 @@ def saturated_gap_warnings(table: pd.DataFrame, nee_sigma,
         shift = float(in_sigmas[year])
         coverage = normal.cdf(quantile - shift) - normal.cdf(-quantile - shift)
         less = "less" if row["contrast"] > 0 else "more"
+        why = ("wet leaves photosynthesise less" if row["contrast"] > 0 else
+               "the state of saturated air differs from that of drier air at this site")
         low = "low (too much uptake)" if row["potential_bias"] < 0 else "high (too little uptake)"
         out.append(
             f"{year}: {int(row['saturated_gaps'])} of the {int(row['day_gaps'])} daytime NEE "
@@ -258,8 +260,8 @@ def saturated_gap_warnings(table: pd.DataFrame, nee_sigma,
             f"{100 * row['measured_share']:.0f} % of the measured daytime records, and the "
             f"measured records in saturated air take up {abs(row['contrast']):.2f} µmol m-2 "
             f"s-1 {less} CO2 than those of {SATURATED_VPD:g}-{vpd_tolerance:g} hPa at the same "
-            f"light and air temperature in the same month (z {row['z']:+.1f}; wet leaves "
-            "photosynthesise less). The fill takes a gap's NEE from records within "
+            f"light and air temperature in the same month (z {row['z']:+.1f}; {why}). "
+            "The fill takes a gap's NEE from records within "
             f"vpd_tolerance = {vpd_tolerance:g} hPa, mostly drier ones, so the year's NEE may "
             f"run {low} by about {abs(row['potential_bias']):.0f} g C m-2, "
             f"{shift:.1f} times the sigma of its 95 % interval, which would then hold the "
