@@ -81,7 +81,7 @@ def test_the_warning_names_the_bias_and_the_coverage_it_leaves():
     assert saturated_gaps.saturated_gap_warnings(table.assign(potential_bias=-9.0),
                                                  sigma) == []
     (other,) = saturated_gaps.saturated_gap_warnings(
-        table.assign(contrast=-1.0, z=-5.0, potential_bias=32.0), sigma)
+        table.iloc[[0]].assign(contrast=-1.0, z=-5.0, potential_bias=32.0), sigma)
     assert "take up 1.00 µmol m-2 s-1 more CO2" in other
     assert "run high (too little uptake) by about 32 g C m-2" in other
 
