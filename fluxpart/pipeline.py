@@ -44,6 +44,7 @@ from . import (
     preflight,
     respiration_driver,
     result_tables,
+    saturated_gaps,
     screening_stage,
     timestamps,
     uncertainty_assembly,
@@ -241,6 +242,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     warnings.extend(budget_warnings.budget_year_warnings(
         assessed.annual, assessed.timeseries, year_keys, interval, config,
         list(result_tables.BUDGET_FLUXES.values()), assessed.unfitted))
+    warnings.extend(saturated_gaps.run_warnings(assessed.timeseries, assessed.annual,
+                                                year_keys, interval, config))
     level = caller_stacklevel()
     for text in warnings:
         _warnings.warn(text, FluxpartWarning, stacklevel=level)

@@ -13,8 +13,8 @@ ROOT = Path(fluxpart.__file__).parent
 METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "column_faults",
                   "driver_mixture", "gap_sides", "gapfill", "method_failure", "partition",
                   "nee_smoothing", "preflight", "responses", "rg_dim", "rg_zeros", "tair_days",
-                  "scenarios", "screening", "shared_records", "solar", "storage_check",
-                  "uncertainty", "unit_checks", "ustar", "ustar_seasonal", "demo"}
+                  "saturated_gaps", "scenarios", "screening", "shared_records", "solar",
+                  "storage_check", "uncertainty", "unit_checks", "ustar", "ustar_seasonal", "demo"}
 ORCHESTRATORS = {"pipeline", "batch", "cli", "verify", "diff", "report"}
 #: the stage modules `pipeline.process` calls in order, each handing the next a small record
 STAGE_MODULES = ("canonical_frame", "screening_stage", "ustar_stage", "respiration_driver",
