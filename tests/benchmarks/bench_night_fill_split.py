@@ -41,7 +41,14 @@ pytest; prints figures and asserts nothing. Usage (a site-year costs a few secon
         ninth /tmp/t9 [--runs M,G] [--csv FILE]
 
 A layout the trial itself refuses (a 10- or 15-minute file) and a run that stops are
-skipped with a line. ``--planted-ustar`` fills at the planted threshold (the trials' option of
+skipped with a line. ``generated`` in place of a trial's name splits the calibration set's
+site-years instead (``--seeds``; :func:`fluxpart.scenarios.generate`, whose loss is a step at
+the planted threshold; night there is the fill's night mask; no stated columns)::
+
+    OMP_NUM_THREADS=1 PYTHONPATH=. .venv/bin/python tests/benchmarks/bench_night_fill_split.py \
+        generated --seeds 0-19
+
+``--planted-ustar`` fills at the planted threshold (the trials' option of
 that name, for the trials that lack it too): the loss the donors carry beyond it. Figures: DEVELOPERS.md, "Night fills of the trials split by
 mechanism (round nightfill48)".
 """
@@ -60,10 +67,10 @@ import pandas as pd
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
-from fluxpart import method_settings, uncertainty_assembly, ustar_runs  # noqa: E402
+from fluxpart import method_settings, scenarios, uncertainty_assembly, ustar_runs  # noqa: E402
 from fluxpart.config import Config  # noqa: E402
 from fluxpart.errors import FluxpartError  # noqa: E402
-from fluxpart.pipeline import process_site_config  # noqa: E402
+from fluxpart.pipeline import process, process_site_config  # noqa: E402
 
 #: g C per umol (standard atomic weight of carbon 12.011 g mol-1 (m)).
 GC_PER_UMOL = 12.011e-6
@@ -73,33 +80,40 @@ class _Stop(Exception):
     """Raised in place of the uncertainty stage: the fills are all that is needed."""
 
 
-def central_fill_inputs(toml, config=None):
+def central_fill_inputs(run):
     """The positional and keyword arguments of the last central NEE fill (``gaps`` not
-    given) of a run of `toml` (with `config` in place of its ``[processing]`` where
-    given), stopped before its uncertainty stage."""
-    calls = []
-    real = ustar_runs.fill_nee
+    given) of `run()` (a call of the pipeline), stopped before its uncertainty stage, and
+    the u* of each record and the central run's threshold [m s-1]."""
+    calls, thresholds = [], []
+    real_fill, real_run = ustar_runs.fill_nee, ustar_runs.fill_and_partition
 
-    def spy(*args, **kwargs):
+    def spy_fill(*args, **kwargs):
         if kwargs.get("gaps") is None:
             calls.append((args, dict(kwargs)))
-        return real(*args, **kwargs)
+        return real_fill(*args, **kwargs)
+
+    def spy_run(*args, **kwargs):
+        given = args[10] if len(args) > 10 else kwargs.get("central_fill")
+        if given is None:                       # the central run (a scenario's has one)
+            thresholds.append((args[0]["ustar"].to_numpy(dtype=float), np.asarray(args[5])))
+        return real_run(*args, **kwargs)
 
     def stop(*args, **kwargs):
         raise _Stop
 
-    ustar_runs.fill_nee, staged = spy, uncertainty_assembly.uncertainty_stage
+    staged = uncertainty_assembly.uncertainty_stage
+    ustar_runs.fill_nee, ustar_runs.fill_and_partition = spy_fill, spy_run
     uncertainty_assembly.uncertainty_stage = stop
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            process_site_config(toml, config)
+            run()
     except _Stop:
         pass
     finally:
-        ustar_runs.fill_nee = real
+        ustar_runs.fill_nee, ustar_runs.fill_and_partition = real_fill, real_run
         uncertainty_assembly.uncertainty_stage = staged
-    return calls[-1]
+    return calls[-1], thresholds[-1]
 
 
 def refill(args, kwargs, target, **changes):
@@ -138,19 +152,46 @@ def planted_config(toml, truth):
                                ustar_threshold=round(threshold, 4))
 
 
-def split_site(toml, truth, planted=False):
-    """One row per complete budget year of the run of `toml` (at the planted u* threshold
-    where `planted`): the night fill error parts (module docstring) [g C m-2]."""
-    args, kwargs = central_fill_inputs(toml, planted_config(toml, truth) if planted else None)
+def trial_years(toml, truth, planted=False):
+    """The rows of :func:`split_fill` for the run of a trial's `toml` (at the planted u*
+    threshold where `planted`), one per complete budget year of its ``out/annual.parquet``
+    (with its stated gap-filling bias and sigma)."""
+    config = planted_config(toml, truth) if planted else None
+    inputs = central_fill_inputs(lambda: process_site_config(toml, config))
+    annual = pd.read_parquet(Path(toml).parent / "out" / "annual.parquet")
+    years = [(year["year"], year["period_start"], year["period_end"],
+              float(year["nee_uncertainty_gapfill_bias"]), float(year["nee_uncertainty_gapfill"]))
+             for _, year in annual.iterrows() if year["complete"]]
+    return split_fill(*inputs, truth, years)
+
+
+def generated_years(seed):
+    """The rows of :func:`split_fill` for the calibration set's generated site-year `seed`
+    (:func:`fluxpart.scenarios.generate`, its step loss; night: the fill's night mask;
+    no stated columns: the uncertainty stage is not run)."""
+    site_year = scenarios.generate(seed)
+    inputs = central_fill_inputs(lambda: process(site_year.frame, site_year.site))
+    truth = site_year.truth.assign(share=site_year.measured_share,
+                                   night=np.asarray(inputs[0][0][3], dtype=bool))
+    index = site_year.frame.index
+    return split_fill(*inputs, truth,
+                      [(seed, index[0], index[-1] + (index[1] - index[0]), np.nan, np.nan)])
+
+
+def split_fill(fill_inputs, threshold, truth, years):
+    """One row per year of `years` (label, start, end, stated bias, stated sigma): the
+    night fill error parts of the module docstring [g C m-2] of the central fill
+    `fill_inputs` (:func:`central_fill_inputs`), the truth's columns ``nee``, ``share`` and
+    ``night``; a year whose truth is incomplete is left out."""
+    args, kwargs = fill_inputs
     nee, conditions, index, is_night, _ = args
     factor = (index[1] - index[0]).total_seconds() * GC_PER_UMOL
     truth = truth.reindex(index)
     true = truth["nee"].to_numpy(dtype=float)
     share = truth["share"].to_numpy(dtype=float)
-    out = Path(toml).parent / "out"
-    series = pd.read_parquet(out / "timeseries.parquet").set_index("time").reindex(index)
     kept = np.isfinite(nee)
-    calm = is_night & (series["ustar"].to_numpy() < WINDY * series["ustar_threshold"].to_numpy())
+    ustar, applied = threshold
+    calm = is_night & (ustar < WINDY * applied)
     clean = np.where(kept, true, np.nan)
     fills = {"fill": refill(args, kwargs, nee),
              "unlossed": refill(args, kwargs, np.where(kept, nee / share, np.nan)),
@@ -165,9 +206,9 @@ def split_site(toml, truth, planted=False):
     near = ((fills["clean"]["method"] == 1) & (fills["clean"]["window_days"] <= 14)).to_numpy()
     night = truth["night"].to_numpy(dtype=bool)
     rows = []
-    for _, year in pd.read_parquet(out / "annual.parquet").iterrows():
-        inside = (index >= year["period_start"]) & (index < year["period_end"])
-        if not year["complete"] or not np.isfinite(true[inside]).all():
+    for label, start, end, stated, sigma in years:
+        inside = (index >= start) & (index < end)
+        if not np.isfinite(true[inside]).all():
             continue
         gap = inside & night & ~kept
 
@@ -176,13 +217,11 @@ def split_site(toml, truth, planted=False):
 
         lossy = inside & night & kept & (share < 0.99)
         rows.append({
-            "year": year["year"], "fill": err("fill"), "loss": err("fill") - err("unlossed"),
+            "year": label, "fill": err("fill"), "loss": err("fill") - err("unlossed"),
             "meas": err("unlossed") - err("clean"), "select": err("clean"),
             "sel7": err("clean", gap & near), "mean": err("mean"),
             "soil": err("soil") if "soil" in fills else np.nan,
-            "windy": err("windy"), "wsel": err("wsel"),
-            "stated": float(year["nee_uncertainty_gapfill_bias"]),
-            "sigma": float(year["nee_uncertainty_gapfill"]),
+            "windy": err("windy"), "wsel": err("wsel"), "stated": stated, "sigma": sigma,
             "lossy": 100 * lossy.sum() / max((inside & night & kept).sum(), 1),
             "lossm": 100 * float(np.mean(1 - share[lossy])) if lossy.any() else 0.0,
             "gaps": int(gap.sum())})
@@ -191,38 +230,48 @@ def split_site(toml, truth, planted=False):
 
 def main(argv=None):
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("trial", help="the trial's name, e.g. ninth (trial_ninth.py)")
-    parser.add_argument("folder", type=Path, help="the trial's --out folder")
+    parser.add_argument("trial", help="the trial's name, e.g. ninth (trial_ninth.py), or "
+                                      "'generated' for the calibration set's site-years")
+    parser.add_argument("folder", type=Path, nargs="?",
+                        help="the trial's --out folder (not for 'generated')")
+    parser.add_argument("--seeds", default="0-9",
+                        help="'generated': the seeds, FIRST-LAST (default 0-9)")
     parser.add_argument("--runs", default="", help="site keys (default: every site)")
     parser.add_argument("--csv", type=Path, help="also write the rows here")
     parser.add_argument("--planted-ustar", action="store_true",
                         help="fill at the planted u* threshold (ustar_method = fixed; the "
-                             "windy donors and the stated columns still at the run's own)")
+                             "stated columns still the run's own)")
     options = parser.parse_args(argv)
-    module = trial_module(options.trial)
-    keys = options.runs.split(",") if options.runs else list(module.SITES)
     rows = []
     columns = ("fill", "loss", "meas", "select", "sel7", "mean", "soil", "windy", "wsel",
                "stated", "sigma", "lossy", "lossm")
     print(f"{'site-year':18s} " + " ".join(f"{c:>6s}" for c in columns) + "   gaps")
-    for key in keys:
-        folder = options.folder / f"site_{key}"
-        if not folder.is_dir():
-            continue
-        _, truth = module.simulate(module.SITES[key], frozenset())
-        for toml in sorted(folder.glob("*.toml")):
+
+    def show(label, split):
+        for row in split:
+            row["site_year"] = f"{label}:{row.pop('year')}"
+            rows.append(row)
+            print(f"{row['site_year']:18s} " + " ".join(
+                f"{row[c]:+6.1f}" for c in columns) + f" {row['gaps']:6d}", flush=True)
+
+    if options.trial == "generated":
+        first, last = (int(v) for v in options.seeds.split("-"))
+        for seed in range(first, last + 1):
+            show("cal", generated_years(seed))
+    else:
+        module = trial_module(options.trial)
+        for key in options.runs.split(",") if options.runs else list(module.SITES):
+            folder = options.folder / f"site_{key}"
             if not (folder / "out" / "annual.parquet").exists():
                 continue
-            try:
-                split = split_site(toml, truth, options.planted_ustar)
-            except FluxpartError as error:      # e.g. a 15-minute layout the trial refuses
-                print(f"{key} {toml.name}: skipped ({str(error)[:120]})")
-                continue
-            for row in split:
-                row["site_year"] = f"{options.trial}:{key}:{row.pop('year')}"
-                rows.append(row)
-                print(f"{row['site_year']:18s} " + " ".join(
-                    f"{row[c]:+6.1f}" for c in columns) + f" {row['gaps']:6d}", flush=True)
+            _, truth = module.simulate(module.SITES[key], frozenset())
+            for toml in sorted(folder.glob("*.toml")):
+                try:
+                    split = trial_years(toml, truth, options.planted_ustar)
+                except FluxpartError as error:  # e.g. a 15-minute layout the trial refuses
+                    print(f"{key} {toml.name}: skipped ({str(error)[:120]})")
+                    continue
+                show(f"{options.trial}:{key}", split)
     if not rows:
         return 1
     table = pd.DataFrame(rows)
