@@ -9,7 +9,8 @@ the central NEE fill (:func:`fluxpart.method_settings.fill_nee`). It then fills 
 gaps again from altered donors and prints, per complete budget year, the error of the
 filled night records (sun below the horizon in the trial's truth) [g C m-2]:
 
-- ``fill``: the product's fill against the truth (the trials' ``err_filled_night``);
+- ``fill``: the product's fill against the truth (the trials' ``err_filled_night``, with
+  the night records of outages, which some trials score apart, included);
 - ``loss``: the part the donors' planted u* loss carries into the fills: the fill of the
   measured donors minus the fill of the same donors with their loss undone (measured /
   the truth's ``share``); issue 11's candidate (a);
@@ -48,9 +49,9 @@ the planted threshold; night there is the fill's night mask; no stated columns):
     OMP_NUM_THREADS=1 PYTHONPATH=. .venv/bin/python tests/benchmarks/bench_night_fill_split.py \
         generated --seeds 0-19
 
-``--planted-ustar`` fills at the planted threshold (the trials' option of
-that name, for the trials that lack it too): the loss the donors carry beyond it. Figures: DEVELOPERS.md, "Night fills of the trials split by
-mechanism (round nightfill48)".
+``--planted-ustar`` fills at the planted threshold (the trials' option of that name, also
+for the trials that lack it): the loss the donors carry beyond it. Figures: DEVELOPERS.md,
+"Night fills of the trials split by mechanism (round nightfill48)".
 """
 
 from __future__ import annotations
