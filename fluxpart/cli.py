@@ -868,18 +868,23 @@ _READING = ("report", "export", "diff")
 #: :func:`_import_uncollected` where the command is the process's own.
 _COMMAND_MODULES = {"run": ("fluxpart.config", "fluxpart.io", "fluxpart.pipeline",
                             "fluxpart.resultdir"),
+                    "check": ("fluxpart.config", "fluxpart.coverage", "fluxpart.io",
+                              "fluxpart.pipeline"),
                     "demo": ("fluxpart.demo", "fluxpart.config", "fluxpart.pipeline"),
                     "verify": ("fluxpart.verify",),
-                    "report": ("fluxpart.report",)}
+                    "report": ("fluxpart.report",),
+                    "diff": ("fluxpart.diff",),
+                    "export": ("fluxpart.export",)}
 
 
 def _import_uncollected(names) -> None:
     """Import the modules `names` with the garbage collector paused, then freeze what is alive.
 
-    The imports of pandas, pyarrow and fluxpart's own modules leave ~150,000 objects that
+    The imports of pandas, pyarrow and fluxpart's own modules leave ~120,000 objects that
     live as long as the process; at :data:`_GC_THRESHOLDS` the collector passed over them
-    three times while they were imported (~0.03 s CPU of a `run`, ~2 % of a site-year),
-    finding nothing to free. Frozen (:func:`gc.freeze`), later passes skip them. A module
+    three or four times while they were imported, finding next to nothing to free: 0.03 s
+    CPU of every such command (~2 % of a `run` of a site-year, 3-5 % of `check` and
+    `diff`, round speed48). Frozen (:func:`gc.freeze`), later passes skip them. A module
     that cannot be imported (an extra not installed) is left to the command, which says so
     as before. Only for the process's own command (:func:`main` without `argv`), whose
     objects are not kept beyond it: a caller's would stay frozen.
