@@ -883,7 +883,7 @@ def _import_uncollected(names) -> None:
     The imports of pandas, pyarrow and fluxpart's own modules leave ~120,000 objects that
     live as long as the process; at :data:`_GC_THRESHOLDS` the collector passed over them
     three or four times while they were imported, finding next to nothing to free: 0.03 s
-    CPU of every such command (~2 % of a `run` of a site-year, 3-5 % of `check` and
+    CPU of every such command (~1.5 % of a `run` of a site-year, 3-5 % of `check` and
     `diff`, round speed48). Frozen (:func:`gc.freeze`), later passes skip them. A module
     that cannot be imported (an extra not installed) is left to the command, which says so
     as before. Only for the process's own command (:func:`main` without `argv`), whose
