@@ -1,5 +1,6 @@
 """The command line: demo, run, check; errors as one line with exit status 2."""
 
+import importlib.util
 import json
 import shutil
 import subprocess
@@ -186,6 +187,52 @@ def test_collector_thresholds_raised_during_a_command_and_restored(example, monk
     assert main(["run", str(example), "--quiet"]) == 2
     assert seen == [cli._GC_THRESHOLDS] and cli._GC_THRESHOLDS != before
     assert gc.get_threshold() == before
+
+
+def test_command_modules_imported_without_collector_passes(tmp_path, monkeypatch):
+    """Issue 17 (round speed48): a command's modules are imported with the garbage
+    collector paused and what they leave is frozen, so no pass scans it; a module that
+    cannot be imported is left to the command; only the process's own command does it."""
+    import gc
+
+    from fluxpart import cli
+
+    # a module of its own, so that the import happens here: 20,000 lasting containers
+    (tmp_path / "speed48_lasting.py").write_text("KEPT = [[i] for i in range(20_000)]\n")
+    monkeypatch.syspath_prepend(str(tmp_path))
+    passes = []
+
+    def note(phase, info):
+        if phase == "start":
+            passes.append(info["generation"])
+
+    thresholds, frozen = gc.get_threshold(), gc.get_freeze_count()
+    gc.set_threshold(100)               # a pass every 100 new containers, were it enabled
+    gc.callbacks.append(note)
+    try:
+        cli._import_uncollected(["speed48_lasting", "fluxpart.no_such_module"])
+        assert passes == [] and gc.isenabled()
+        assert gc.get_freeze_count() >= frozen + 20_000
+        assert len(sys.modules["speed48_lasting"].KEPT) == 20_000
+    finally:
+        gc.callbacks.remove(note)
+        gc.set_threshold(*thresholds)
+        gc.unfreeze()
+        sys.modules.pop("speed48_lasting", None)
+    assert all(importlib.util.find_spec(name) is not None
+               for names in cli._COMMAND_MODULES.values() for name in names)
+    # the process's own command (no argv) imports its modules so; a caller's main(argv)
+    # freezes nothing of the caller's
+    called = []
+    monkeypatch.setattr(cli, "_import_uncollected", called.append)
+    monkeypatch.setattr(sys, "argv", ["fluxpart", "run", str(tmp_path / "absent.toml"),
+                                      "--quiet"])
+    try:
+        assert main() == 2
+    finally:
+        gc.unfreeze()                   # main() froze the process's objects at its end
+    assert main(sys.argv[1:]) == 2
+    assert called == [cli._COMMAND_MODULES["run"]]
 
 
 def _thinned_nights(tmp_path, keep):
