@@ -13,6 +13,7 @@ ROOT = Path(fluxpart.__file__).parent
 METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "column_faults",
                   "driver_mixture", "gap_sides", "gapfill", "method_failure", "partition",
                   "nee_smoothing", "preflight", "responses", "rg_dim", "rg_zeros", "tair_days",
+                  "ustar_prefilter", "vpd_zero",
                   "scenarios", "screening", "shared_records", "solar", "storage_check",
                   "uncertainty", "unit_checks", "ustar", "ustar_seasonal", "demo"}
 ORCHESTRATORS = {"pipeline", "batch", "cli", "verify", "diff", "report"}
