@@ -78,6 +78,10 @@ more from 0 (values beyond a limit
 removed)
 a column repeating its value in every     input (tair twice, ...)             no
 other record (a coarser file joined)
+night NEE missing below one u* and        input (nee u* filtered)             no
+measured above it (filtered before read)
+VPD 0 in most sunlit, warm records of a   input (vpd zeros)                   no
+month (a rain gauge, a lost sensor)
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no

@@ -107,7 +107,7 @@ def vpd_zero_in_sunshine(vpd, rg, tair, index, names=None) -> str | None:
                        for month, row in named.head(6).iterrows())
     more = f" and {len(named) - 6} more" if len(named) > 6 else ""
     return (f"{column} reads {ZERO_VPD:g} hPa or less in most records with Rg of "
-            f"{SUNLIT_RG:g} W m-2 or more and the air at {WARM_TAIR:g} degC or warmer in "
+            f"{SUNLIT_RG:g} W m-2 or more and the air at {WARM_TAIR:g} °C or warmer in "
             f"{len(named)} month(s): {listed}{more}. Air in bright sunshine is not "
             "saturated (fog and dew dissipate once the sun heats the ground), so these "
             "zeros are no deficit: a rain gauge's column mapped as vpd, a humidity sensor "
