@@ -506,7 +506,8 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                 # night NEE filtered by a u* threshold before it was read (mistakes42)
                 text = ustar_prefilter.nee_filtered_by_ustar(
                     screened["nee"].to_numpy(dtype=float),
-                    screened["ustar"].to_numpy(dtype=float), is_night, names)
+                    screened["ustar"].to_numpy(dtype=float), is_night, names,
+                    screened.index)
                 if text:
                     findings.append(Finding(ustar_prefilter.STAGE, text, False))
     if {"vpd", "rg", "tair"} <= set(screened.columns):

@@ -31,6 +31,7 @@ B. (eds), Handbook of Micrometeorology, Kluwer, 181-208 (m)
 from __future__ import annotations
 
 import numpy as np
+import pandas as pd
 
 __all__ = ["MAX_SHARE_BELOW", "MIN_RECORDS_BELOW", "STAGE", "nee_filtered_by_ustar"]
 
@@ -61,7 +62,7 @@ _MIN_SHARE_ABOVE = 0.2
 _MIN_RATIO = 10.0
 
 
-def nee_filtered_by_ustar(nee, ustar, is_night, names=None) -> str | None:
+def nee_filtered_by_ustar(nee, ustar, is_night, names=None, index=None) -> str | None:
     """A message where night NEE is missing below one u*, as a u* filter leaves it, or None.
 
     Parameters
@@ -75,6 +76,9 @@ def nee_filtered_by_ustar(nee, ustar, is_night, names=None) -> str | None:
         The run's night mask.
     names : dict, optional
         Canonical name -> file column, to name the columns in the message.
+    index : pandas.DatetimeIndex, optional
+        The records' stamps: where the whole record is not named, each calendar year is
+        judged alone (a year of another program's export joined to the record).
 
     Returns
     -------
@@ -104,8 +108,44 @@ def nee_filtered_by_ustar(nee, ustar, is_night, names=None) -> str | None:
     """
     nee = np.asarray(nee, dtype=float)
     ustar = np.asarray(ustar, dtype=float)
-    night = np.asarray(is_night, dtype=bool) & np.isfinite(ustar)
-    if nee.shape != ustar.shape or night.sum() < MIN_RECORDS_BELOW * 2:
+    night = np.asarray(is_night, dtype=bool)
+    if not nee.shape == ustar.shape == night.shape:
+        return None
+    split = _split(nee, ustar, night)
+    where = ""
+    if split is None and index is not None and len(index) == nee.size:
+        years = pd.DatetimeIndex(index).year.to_numpy()
+        for year in np.unique(years):
+            split = _split(nee, ustar, night & (years == year))
+            if split is not None:
+                where = f" in {year}"
+                break
+    if split is None:
+        return None
+    cut, below, missing, share_of_nights, share_above = split
+    names = names or {}
+    flux = names.get("nee", "nee")
+    flag = names.get("nee_flag")
+    flag_text = (f", or the flag {flag!r} includes the u* test" if flag
+                 else "")
+    return (f"nee (column {flux!r}) is missing in {missing} of the {below} "
+            f"night records{where} with u* (column {names.get('ustar', 'ustar')!r}) below "
+            f"{cut:.3g} m s-1 ({100 * share_of_nights:.0f} % of the night records with u*) "
+            f"and measured in {100 * share_above:.0f} % of those above: the flux looks "
+            f"filtered by a u* threshold already (an earlier program's u* filter{flag_text}), "
+            "where a tower's quality tests reject many calm night records but never all of "
+            "them. The run filters the nights again: its u* detector cannot see the "
+            "threshold of the calm nights removed, the u* uncertainty misses them, and a "
+            "threshold above the site's removes nights both partitionings need. Read the "
+            "flux before any u* filter (and a flag without the u* test)")
+
+
+def _split(nee, ustar, night):
+    """The split of `night` records by u* the rule names, as (cut [m s-1], records below,
+    of them without NEE, their share of the night records, share measured above), or
+    None."""
+    night = night & np.isfinite(ustar)
+    if night.sum() < MIN_RECORDS_BELOW * 2:
         return None
     order = np.argsort(ustar[night], kind="stable")
     sorted_ustar = ustar[night][order]
@@ -126,18 +166,4 @@ def nee_filtered_by_ustar(nee, ustar, is_night, names=None) -> str | None:
             or share_above < max(_MIN_SHARE_ABOVE, _MIN_RATIO * share_below)):
         return None
     cut = sorted_ustar[k] if sorted_ustar[k] > sorted_ustar[k - 1] else sorted_ustar[k - 1]
-    names = names or {}
-    flux = names.get("nee", "nee")
-    flag = names.get("nee_flag")
-    flag_text = (f", or the flag {flag!r} includes the u* test" if flag
-                 else "")
-    return (f"nee (column {flux!r}) is missing in {k - int(measured[k - 1])} of the {k} "
-            f"night records with u* (column {names.get('ustar', 'ustar')!r}) below "
-            f"{cut:.3g} m s-1 ({100 * k / total:.0f} % of the night records with u*) and "
-            f"measured in {100 * share_above:.0f} % of those above: the flux looks filtered "
-            f"by a u* threshold already (an earlier program's u* filter{flag_text}), where "
-            "a tower's quality tests reject many calm night records but never all of them. "
-            "The run filters the nights again: its u* detector cannot see the threshold "
-            "of the calm nights removed, the u* uncertainty misses them, and a threshold "
-            "above the site's removes nights both partitionings need. Read the flux "
-            "before any u* filter (and a flag without the u* test)")
+    return float(cut), k, k - int(measured[k - 1]), k / total, float(share_above)

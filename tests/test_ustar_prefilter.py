@@ -36,6 +36,16 @@ def test_quality_losses_at_low_ustar_are_quiet_and_a_ustar_filter_is_named():
     assert "'co2_flux'" in text and "'u_fric'" in text and "'qc'" in text
     # the day records are not judged: a filter of the nights alone
     assert nee_filtered_by_ustar(filtered, ustar, np.zeros(ustar.size, dtype=bool)) is None
+    # a second year of another program's export, filtered, joined to a first that is not:
+    # the whole record passes, the year alone is named
+    both = np.concatenate([nee, filtered])
+    twice = np.concatenate([ustar, ustar])
+    assert nee_filtered_by_ustar(both, twice, np.ones(both.size, dtype=bool)) is None
+    years = pd.DatetimeIndex(np.where(np.arange(both.size) < ustar.size,
+                                            pd.Timestamp("2021-06-01"),
+                                            pd.Timestamp("2022-06-01")))
+    text = nee_filtered_by_ustar(both, twice, np.ones(both.size, dtype=bool), index=years)
+    assert "night records in 2022 with u*" in text and "below 0.25 m s-1" in text
 
 
 def test_the_example_as_written_is_quiet_and_filtered_below_its_threshold_is_named():
