@@ -13,6 +13,11 @@ mask is the run's default (Rg below 10 W m-2); NEE the site flag rejects is remo
 screen removes it. Usage (about a minute)::
 
     .venv/bin/python tests/benchmarks/bench_prefilter_vpd_zero.py
+
+Round mistakes42 (2026-12-05): 68 site-years; false alarms 0 of 68 for either check,
+planted mistakes named in 68 of 68 for each; the calmest 5 % of the night records hold
+NEE in 26-59 % (median 44 %). The invented Quillmoor demo of ten years (seed 3, c3 and
+c4, 30 and 60 min, each year judged alone too): 0.
 """
 from __future__ import annotations
 
