@@ -77,8 +77,9 @@ def nee_filtered_by_ustar(nee, ustar, is_night, names=None, index=None) -> str |
     names : dict, optional
         Canonical name -> file column, to name the columns in the message.
     index : pandas.DatetimeIndex, optional
-        The records' stamps: where the whole record is not named, each calendar year is
-        judged alone (a year of another program's export joined to the record).
+        The records' stamps: records inside a run of missing NEE of a day or more (an
+        outage) are left out, and where the whole record is not named, each calendar
+        year is judged alone (a year of another program's export joined to the record).
 
     Returns
     -------
@@ -111,6 +112,10 @@ def nee_filtered_by_ustar(nee, ustar, is_night, names=None, index=None) -> str |
     night = np.asarray(is_night, dtype=bool)
     if not nee.shape == ustar.shape == night.shape:
         return None
+    if index is not None and len(index) == nee.size:
+        # records of an outage (NEE missing a day or more on end, by day too) are no
+        # filter's: a winter without the analyser holds the calm nights of an inversion
+        night = night & ~_outage(np.isnan(nee), pd.DatetimeIndex(index))
     split = _split(nee, ustar, night)
     where = ""
     if split is None and index is not None and len(index) == nee.size:
@@ -138,6 +143,21 @@ def nee_filtered_by_ustar(nee, ustar, is_night, names=None, index=None) -> str |
             "threshold of the calm nights removed, the u* uncertainty misses them, and a "
             "threshold above the site's removes nights both partitionings need. Read the "
             "flux before any u* filter (and a flag without the u* test)")
+
+
+def _outage(missing, index):
+    """Records inside a run of missing NEE lasting a day or more (an outage)."""
+    if missing.size < 2:
+        return np.zeros(missing.size, dtype=bool)
+    step = (index[1:] - index[:-1]).median() / pd.Timedelta(days=1)    # days
+    per_day = max(int(round(1.0 / step)), 1) if step > 0 else missing.size
+    edges = np.diff(np.concatenate([[0], missing.astype(np.int8), [0]]))
+    starts, ends = np.flatnonzero(edges == 1), np.flatnonzero(edges == -1)
+    long = (ends - starts) >= per_day
+    covered = np.zeros(missing.size + 1, dtype=np.int64)
+    np.add.at(covered, starts[long], 1)
+    np.add.at(covered, ends[long], -1)
+    return np.cumsum(covered[:-1]) > 0
 
 
 def _split(nee, ustar, night):

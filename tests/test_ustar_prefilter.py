@@ -48,6 +48,23 @@ def test_quality_losses_at_low_ustar_are_quiet_and_a_ustar_filter_is_named():
     assert "night records in 2022 with u*" in text and "below 0.25 m s-1" in text
 
 
+def test_an_outage_holding_the_calm_nights_is_no_filter():
+    """Known-truth recovery on invented hourly nights: an analyser off for a month of
+    calm nights (a winter inversion) leaves the calmest records without NEE, yet as one
+    run of records missing on end, by day too; with the stamps given it is not named."""
+    rng = np.random.default_rng(11)
+    n = 24 * 200
+    index = pd.date_range("2021-01-01", periods=n, freq="h")
+    ustar = rng.lognormal(np.log(0.25), 0.25, n)
+    winter = np.arange(n) < 24 * 30
+    ustar[winter] *= 0.2                                    # the calm month
+    nee = np.where(rng.random(n) < 0.6, 2.0, np.nan)
+    nee[winter] = np.nan                                    # the analyser off
+    night = np.ones(n, dtype=bool)
+    assert nee_filtered_by_ustar(nee, ustar, night) is not None   # without the stamps
+    assert nee_filtered_by_ustar(nee, ustar, night, index=index) is None
+
+
 def test_the_example_as_written_is_quiet_and_filtered_below_its_threshold_is_named():
     """The invented Quillmoor grassland as written, and with night NEE removed below
     0.2 m s-1, near its detected threshold of 0.156 (night: Rg below the default 10 W m-2)."""

@@ -52,7 +52,7 @@ def checks(frame, threshold):
     with np.errstate(invalid="ignore"):
         night = rg < 10.0
     prefilter = ustar_prefilter.nee_filtered_by_ustar(
-        nee, frame["ustar"].to_numpy(dtype=float), night)
+        nee, frame["ustar"].to_numpy(dtype=float), night, index=frame.index)
     zero = vpd_zero.vpd_zero_in_sunshine(frame["vpd"].to_numpy(dtype=float), rg,
                                          frame["tair"].to_numpy(dtype=float), frame.index)
     return prefilter is not None, zero is not None
