@@ -78,6 +78,10 @@ more from 0 (values beyond a limit
 removed)
 a column repeating its value in every     input (tair twice, ...)             no
 other record (a coarser file joined)
+night NEE missing below one u* and        input (nee u* filtered)             no
+measured above it (filtered before read)
+VPD 0 in most sunlit, warm records of a   input (vpd zeros)                   no
+month (a rain gauge, a lost sensor)
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no
@@ -109,6 +113,8 @@ from . import (
     rg_zeros,
     solar,
     tair_days,
+    ustar_prefilter,
+    vpd_zero,
 )
 from .column_faults import (
     PLACEHOLDER_VARIABLES,
@@ -496,6 +502,22 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                               is_night, names, screened.index)
             if text:
                 findings.append(Finding("input (nee smoothed)", text, False))
+            if "ustar" in screened.columns:
+                # night NEE filtered by a u* threshold before it was read (mistakes42)
+                text = ustar_prefilter.nee_filtered_by_ustar(
+                    screened["nee"].to_numpy(dtype=float),
+                    screened["ustar"].to_numpy(dtype=float), is_night, names,
+                    screened.index)
+                if text:
+                    findings.append(Finding(ustar_prefilter.STAGE, text, False))
+    if {"vpd", "rg", "tair"} <= set(screened.columns):
+        # VPD 0 in bright sunshine: a rain gauge or a lost sensor as vpd (mistakes42)
+        text = vpd_zero.vpd_zero_in_sunshine(screened["vpd"].to_numpy(dtype=float),
+                                             screened["rg"].to_numpy(dtype=float),
+                                             screened["tair"].to_numpy(dtype=float),
+                                             screened.index, names)
+        if text:
+            findings.append(Finding(vpd_zero.STAGE, text, False))
     for name in PLACEHOLDER_VARIABLES:
         # one value written into gap after gap (round mistakes26)
         if name in screened.columns:

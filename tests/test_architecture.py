@@ -14,7 +14,8 @@ METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "c
                   "driver_mixture", "gap_sides", "gapfill", "method_failure", "partition",
                   "nee_smoothing", "preflight", "responses", "rg_dim", "rg_zeros", "tair_days",
                   "saturated_gaps", "scenarios", "screening", "shared_records", "solar",
-                  "storage_check", "uncertainty", "unit_checks", "ustar", "ustar_seasonal", "demo"}
+                  "storage_check", "uncertainty", "unit_checks", "ustar", "ustar_prefilter",
+                  "ustar_seasonal", "vpd_zero", "demo"}
 ORCHESTRATORS = {"pipeline", "batch", "cli", "verify", "diff", "report"}
 #: the stage modules `pipeline.process` calls in order, each handing the next a small record
 STAGE_MODULES = ("canonical_frame", "screening_stage", "ustar_stage", "respiration_driver",
