@@ -263,7 +263,8 @@ class ReadReport:
         What was done to stamps: ``hour_24`` (read as midnight of the next day),
         ``utc_offset`` (converted from stamps carrying an offset), ``daylight_saving``
         (moved from civil to standard time), ``time_zone`` (the zone, if any);
-        ``rounded_to_minute``, ``date_only`` (midnight written as the date alone) and
+        ``rounded_to_minute``, ``date_only`` (midnight written as the date alone),
+        ``whole_numbers`` (fields written "2021.0" read without the point; layouts38) and
         ``utc_zone`` (stamps of a UTC zone moved to the site's offset) only where they
         happened.
     nonfinite_cells : dict
@@ -3756,7 +3757,9 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                         # only where it happened: earlier manifests have no such key
                         **({"rounded_to_minute": parsed.rounded_to_minute}
                            if parsed.rounded_to_minute else {}),
-                        **({"date_only": parsed.date_only} if parsed.date_only else {})},
+                        **({"date_only": parsed.date_only} if parsed.date_only else {}),
+                        **({"whole_numbers": parsed.whole_numbers}
+                           if parsed.whole_numbers else {})},
     }
 
 
@@ -5155,6 +5158,9 @@ def _conversion_text(conversions: dict) -> str:
     if conversions.get("date_only"):
         parts.append(f"{conversions['date_only']} stamp(s) written as the date alone read "
                      "as midnight")
+    if conversions.get("whole_numbers"):
+        parts.append(f"{conversions['whole_numbers']} stamp(s) with whole numbers written "
+                     "with a decimal point (2021.0) read without it")
     if conversions.get("utc_zone"):
         parts.append(f"{conversions['utc_zone']} stamp(s) in {conversions.get('time_zone')} "
                      "moved to local standard time")

@@ -1,0 +1,106 @@
+"""Layouts of the layouts38 round: stamps counted since a reference date (spreadsheet day
+numbers, Unix time) under time_format = "<unit> since <date>", and stamp fields written as
+whole numbers with a decimal point ("2021.0 1.0 30.0").
+
+Outside facts, each named beside its check: the "<unit> since <reference>" form of a time
+coordinate's units (CF conventions, section 4.4 (m)); spreadsheets count days from
+1899-12-30 in the 1900 date system and from 1904-01-01 in Excel's 1904 date system
+(Microsoft, "Date systems in Excel" (m)); Unix time counts seconds since 1970-01-01 00:00
+UTC (POSIX.1 (m)); the expected stamps are computed with Python's datetime, a general-purpose
+reference. pandas writes an integer column holding a missing value as float64 ("30.0")
+(pandas documentation (m)). Everything else is invented known truth: the records as written.
+"""
+from datetime import datetime, timedelta
+
+import pandas as pd
+import pytest
+from test_robustness_layouts35 import _records  # invented records of 1-10 June 2021
+from test_robustness_layouts36 import MAPPING, SITE
+from test_robustness_layouts37 import _assert_all
+
+from fluxpart.counted_time import counted_form
+from fluxpart.errors import TimestampError
+from fluxpart.io import read_table
+
+
+def _read(path, **options):
+    settings = {"time_column": "stamp", "time_format": "%Y%m%d%H%M", "time_marks": "end"}
+    settings.update(options)
+    return read_table(path, columns=MAPPING, units={"vpd": "kPa"}, site=SITE, **settings)
+
+
+def _write(tmp_path, stamps, frame, **columns):
+    frame = frame.copy()
+    frame["stamp"] = stamps
+    for name, values in columns.items():
+        frame.insert(0, name, values)
+    path = tmp_path / "t.csv"
+    frame.to_csv(path, index=False)
+    return path
+
+
+@pytest.mark.parametrize("time_format, count", [
+    # spreadsheet day numbers of the 1900 system, six decimals (0.09 s)
+    ("days since 1899-12-30",
+     lambda end: f"{(end - datetime(1899, 12, 30)) / timedelta(days=1):.6f}"),
+    # Excel's 1904 date system, five decimals (0.9 s: rounded to the minute)
+    ("days since 1904-01-01",
+     lambda end: f"{(end - datetime(1904, 1, 1)) / timedelta(days=1):.5f}"),
+    # Unix time: the stamps in UTC, the site at UTC+1
+    ("seconds since 1970-01-01 00:00:00 UTC",
+     lambda end: str(int((end - timedelta(hours=1) - datetime(1970, 1, 1)).total_seconds()))),
+    ("milliseconds since 1970-01-01T00:00Z",
+     lambda end: str(int((end - timedelta(hours=1) - datetime(1970, 1, 1))
+                         / timedelta(milliseconds=1)))),
+    ("hours since 2021-06-01 00:00",
+     lambda end: f"{(end - datetime(2021, 6, 1)) / timedelta(hours=1):g}"),
+])
+def test_counted_stamps_are_read_under_their_form(tmp_path, time_format, count):
+    """Refused before layouts38 ("which fluxpart does not read", or the format's 'UTC'
+    taken for a clock against the site's)."""
+    frame, ends = _records()
+    path = _write(tmp_path, [count(end.to_pydatetime()) for end in ends], frame)
+    read, _ = _read(path, time_format=time_format)
+    _assert_all(read, frame, ends)
+
+
+def test_counted_forms_and_their_refusals(tmp_path):
+    assert counted_form("%Y-%m-%d %H:%M") is None and counted_form("ISO8601") is None
+    assert counted_form("Days since 1899-12-30") == (86400.0, pd.Timestamp("1899-12-30"), None)
+    assert counted_form("seconds since 1970-01-01 00:00 +0530")[2] == "+05:30"
+    with pytest.raises(TimestampError, match="'2021-02-30' is no date"):
+        counted_form("days since 2021-02-30")
+    frame, ends = _records()
+    serial = [f"{(e.to_pydatetime() - datetime(1899, 12, 30)) / timedelta(days=1):.6f}"
+              for e in ends]
+    serial[40] = "#VALUE!"
+    path = _write(tmp_path, serial, frame)
+    with pytest.raises(TimestampError, match=r"line 42 .* has stamp '#VALUE!', which is no "
+                                             r"number of time_format = \"days since"):
+        _read(path, time_format="days since 1899-12-30")
+    # without the form the column is refused, now naming the setting that reads it
+    serial[40] = serial[41]
+    path = _write(tmp_path, serial[:40] + serial[41:] + [serial[-1]], frame)
+    with pytest.raises(TimestampError, match=r'set \[input\] time_format = "days since '
+                                             r'1899-12-30" to read them'):
+        _read(path, time_format="%Y-%m-%d %H:%M")
+
+
+def test_stamp_fields_of_whole_numbers_with_a_point_are_read(tmp_path):
+    """Refused before layouts38 ("'2021.0 152.0 30.0' does not match")."""
+    frame, ends = _records()
+    path = _write(tmp_path, "", frame.drop(columns="stamp"),
+                  hhmm=[f"{int(e.strftime('%H%M'))}.0" for e in ends],
+                  doy=[f"{int(e.strftime('%j'))}.0" for e in ends],
+                  yr=[f"{e.year}.0" for e in ends])
+    read, report = _read(path, time_column=["yr", "doy", "hhmm"], time_format="%Y %j %H%M")
+    _assert_all(read, frame, ends)
+    assert report.stamp_conversions["whole_numbers"] == len(ends)
+    # a format with a point of its own reads the point: hourly "%H.%M" stamps stay as
+    # written (13.00 is 13:00, not 1300)
+    hourly = [f"{e:%Y-%m-%d} {e.hour}.00" for e in ends[1::2]]
+    path = _write(tmp_path, hourly, frame.iloc[1::2])
+    read, report = _read(path, time_format="%Y-%m-%d %H.%M")
+    assert read.index.equals(pd.DatetimeIndex(ends[1::2] - pd.Timedelta("1h"), name="time")
+                             .as_unit(read.index.unit))
+    assert "whole_numbers" not in report.stamp_conversions
