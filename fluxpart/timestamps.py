@@ -21,8 +21,8 @@ from datetime import datetime, timedelta
 import numpy as np
 import pandas as pd
 
-from .counted_time import counted_form, counted_stamps
 from .config import setting_text
+from .counted_time import counted_form, counted_stamps
 from .errors import (
     ConfigError,
     DuplicateTimestampError,

@@ -118,19 +118,19 @@ def months(raw, ends):
 @layout
 def units_in_brackets(folder):
     raw, _ = table()
-    raw.columns = [f"{n} [{u}]" if u != "-" else n for n, u in zip(raw.columns, UNITS)]
+    raw.columns = [f"{n} [{u}]" if u != "-" else n for n, u in zip(raw.columns, UNITS, strict=True)]
     write(folder / "t.csv", lines(raw))
     toml(folder, "t.csv", columns={k: f"{v} [{u}]" if u != "-" else v for (k, v), u in
-                                   zip(MAP.items(), UNITS[1:])})
+                                   zip(MAP.items(), UNITS[1:], strict=True)})
 
 
 @layout
 def units_in_parentheses(folder):
     raw, _ = table()
-    raw.columns = [f"{n} ({u})" if u != "-" else n for n, u in zip(raw.columns, UNITS)]
+    raw.columns = [f"{n} ({u})" if u != "-" else n for n, u in zip(raw.columns, UNITS, strict=True)]
     write(folder / "t.csv", lines(raw))
     toml(folder, "t.csv", columns={k: f"{v} ({u})" if u != "-" else v for (k, v), u in
-                                   zip(MAP.items(), UNITS[1:])})
+                                   zip(MAP.items(), UNITS[1:], strict=True)})
 
 
 @layout
@@ -483,7 +483,7 @@ def non_ascii_column_names(folder):
     raw.columns = names
     write(folder / "t.csv", lines(raw))
     toml(folder, "t.csv", time_column="Zeitstempel",
-         columns=dict(zip(MAP, names[1:])))
+         columns=dict(zip(MAP, names[1:], strict=True)))
 
 
 @layout
@@ -496,7 +496,7 @@ def latin1_names_and_units_declared(folder):
     text.insert(1, ";µmol m-2 s-1;W m-2;°C;kPa;m s-1;°C;%;-")
     write(folder / "t.csv", text, encoding="latin-1")
     toml(folder, "t.csv", time_column="horodatage", delimiter=";", encoding="latin-1",
-         rows_after_header=1, columns=dict(zip(MAP, names[1:])))
+         rows_after_header=1, columns=dict(zip(MAP, names[1:], strict=True)))
 
 
 @layout
@@ -717,7 +717,7 @@ def whitespace_file_quoted_names_with_blanks(folder):
     text = [" ".join(f'"{n}"' for n in names)] + lines(raw, sep="  ", header=False)
     write(folder / "t.dat", text)
     toml(folder, "t.dat", delimiter="whitespace", time_column="time stamp",
-         columns=dict(zip(MAP, names[1:])))
+         columns=dict(zip(MAP, names[1:], strict=True)))
 
 
 @layout
@@ -751,7 +751,7 @@ def numbers_with_bare_points(folder):
 @layout
 def month_files_order_changes_with_units_line(folder):
     raw, ends = table()
-    unit_of = dict(zip(raw.columns, UNITS))
+    unit_of = dict(zip(raw.columns, UNITS, strict=True))
     rng = np.random.default_rng(8)
     for month, part in months(raw, ends):
         order = ["stamp"] + list(rng.permutation(part.columns[1:]))
