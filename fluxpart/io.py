@@ -100,6 +100,7 @@ from .timestamps import (
     join_time_columns,
     offsets_in_stamps,
     parse_stamps,
+    written_newest_first,
 )
 from .unit_checks import (
     _FLAG_REFUSE,
@@ -964,6 +965,13 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     header_rows = _header_rows_warning(parts)
     if header_rows:
         warnings.append(header_rows)
+    newest = [part["source"] for part in parts if part["newest_first"]]
+    if newest:
+        warnings.append(
+            (f"input file {newest[0]!r} is" if len(parts) == 1 else
+             f"{len(newest)} of {len(parts)} input files ({_file_list(newest)}) are")
+            + " written newest first (the stamps go back in time from line to line): read "
+            "oldest first")
     warnings.extend(_labelled_unit_warnings(parts, mapping, units))
     parts, absent, joined = _fill_lacking(parts, mapping, time_columns, warnings)
     combined = _combine(parts)
@@ -3683,6 +3691,18 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)
+    newest_first = written_newest_first(parsed.stamps)
+    if newest_first:
+        # a portal's export sorted newest first (layouts38; refused before with "sort a
+        # copy of the file oldest first"): read in the logger's order, parsed again so
+        # that civil time's repeated autumn hour is resolved by that order
+        order = np.arange(len(raw))[::-1]
+        raw = raw.iloc[order].reset_index(drop=True)
+        stamp_text = stamp_text.iloc[order].reset_index(drop=True)
+        lines = lines[order]
+        parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns,
+                              source=source, lines=lines, utc_offset=utc_offset,
+                              time_zone=time_zone, rows_after_header=rows_after_header)
     if time_marks is not None and len(time_columns) == 1:
         _refuse_paired_stamps(raw, stamp_text, time_columns[0], time_format, mapping,
                               flag_columns, time_marks, source)
@@ -3749,7 +3769,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         "stamps": stamps, "lines": lines[keep],
         "values": {name: column[keep] for name, column in values.items()},
         "records_read": len(raw), "duplicate_rows": int(duplicate.sum()),
-        "header_trailing_delimiter": bool(unnamed_surplus),
+        "newest_first": newest_first, "header_trailing_delimiter": bool(unnamed_surplus),
         "missing_cells": missing_cells, "nonfinite_cells": nonfinite,
         "conversions": {"hour_24": parsed.hour_24, "utc_offset": parsed.offset_converted,
                         "daylight_saving": parsed.daylight_saving,

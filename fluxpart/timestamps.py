@@ -46,6 +46,7 @@ __all__ = [
     "budget_years",
     "check_isolated_stretch",
     "check_order",
+    "written_newest_first",
     "check_time_zone",
     "clock_alignment_warning",
     "interval_change_warning",
@@ -1775,12 +1776,7 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         row = int(backwards[0]) + 1
         back_days = -float(steps[row - 1]) / 86400.0
         swapped = _runs_in_reverse_order(stamps, backwards)
-        if steps.size >= 2 and backwards.size >= 0.99 * steps.size:
-            # a whole file written newest first (an export sorted descending; layouts34:
-            # named as one step back, as if one record were out of place)
-            hint = (f"{backwards.size} of its {steps.size} steps go backwards: the file is "
-                    "written newest first; sort a copy of the file oldest first")
-        elif swapped:
+        if swapped:
             hint = swapped
         elif _day_month_mixed(stamps):
             hint = ("read with the day and the month exchanged, the stamps whose day is 12 "
@@ -1814,6 +1810,22 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         raise NonMonotonicTimestampError(
             f"stamps go backwards at {_where(source, lines, row)}: {text.iloc[row]!r} comes "
             f"after {text.iloc[row - 1]!r}; {hint}")
+
+
+def written_newest_first(stamps: pd.DatetimeIndex) -> bool:
+    """True where a file's stamps go backwards at 99 % of their steps or more (three
+    stamps at least): an export sorted newest first, whose records read in reverse
+    order are the logger's (a record or two out of place among them aside).
+
+    References
+    ----------
+    Data portals and databases sort an export by time in either direction (SQL's ORDER
+    BY ... DESC; common practice).
+    """
+    if len(stamps) < 3:
+        return False
+    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(seconds=1))
+    return bool((steps < 0).sum() >= 0.99 * steps.size)
 
 
 def _runs_in_reverse_order(stamps: pd.DatetimeIndex, backwards: np.ndarray) -> str:

@@ -104,3 +104,29 @@ def test_stamp_fields_of_whole_numbers_with_a_point_are_read(tmp_path):
     assert read.index.equals(pd.DatetimeIndex(ends[1::2] - pd.Timedelta("1h"), name="time")
                              .as_unit(read.index.unit))
     assert "whole_numbers" not in report.stamp_conversions
+
+
+def test_a_file_newest_first_in_civil_time_is_read_in_the_loggers_order(tmp_path):
+    """Refused before layouts38 ("sort a copy of the file oldest first"). Civil time of
+    Europe/Berlin repeats 02:00-03:00 on 31 October 2021 (IANA time zone database (m)):
+    read in reverse, the file's records are the logger's order again, whose first 02:30
+    is summer time. Month files newest first are named in one warning."""
+    ends = pd.date_range("2021-10-28 00:30", periods=48 * 6, freq="30min")
+    frame, _ = _records(len(ends))
+    civil = ends.tz_localize("Etc/GMT-1").tz_convert("Europe/Berlin")
+    path = _write(tmp_path, list(civil.strftime("%Y-%m-%d %H:%M")), frame)
+    expected, _ = _read(path, time_format="%Y-%m-%d %H:%M", time_zone="Europe/Berlin")
+    _assert_all(expected, frame, ends)
+    lines = path.read_text().splitlines()
+    path.write_text("\n".join(lines[:1] + lines[:0:-1]) + "\n")
+    read, report = _read(path, time_format="%Y-%m-%d %H:%M", time_zone="Europe/Berlin")
+    _assert_all(read, frame, ends)
+    assert any("is written newest first" in w for w in report.warnings)
+    parts = [tmp_path / "a.csv", tmp_path / "b.csv"]
+    for part, rows in zip(parts, (lines[1:100], lines[100:]), strict=True):
+        part.write_text("\n".join(lines[:1] + rows[::-1]) + "\n")
+    read, report = _read([str(p) for p in parts], time_format="%Y-%m-%d %H:%M",
+                         time_zone="Europe/Berlin")
+    _assert_all(read, frame, ends)
+    assert any("2 of 2 input files ('" in w and "are written newest first" in w
+               for w in report.warnings)

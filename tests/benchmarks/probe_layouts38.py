@@ -849,6 +849,23 @@ def excel_1904_days_five_decimals(folder):
     toml(folder, "t.txt", delimiter="\t", time_format="days since 1904-01-01")
 
 
+@layout
+def newest_first_in_civil_time(folder):
+    raw, ends = table()
+    local = (ends.dt.tz_localize("Etc/GMT-1").dt.tz_convert("Europe/Berlin"))
+    raw["stamp"] = list(local.dt.strftime("%Y-%m-%d %H:%M"))
+    write(folder / "t.csv", lines(raw.iloc[::-1]))
+    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M", time_zone="Europe/Berlin")
+
+
+@layout
+def newest_first_month_files(folder):
+    raw, ends = table()
+    for month, part in months(raw, ends):
+        write(folder / f"n{month:02d}.csv", lines(part.iloc[::-1]))
+    toml(folder, "n*.csv")
+
+
 # --------------------------------------------------------------------------- judging
 def truth(missing):
     """The example's own frame, with the records a layout leaves out missing."""
