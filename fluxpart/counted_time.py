@@ -96,7 +96,8 @@ def counted_stamps(text: pd.Series, time_format: str) -> tuple[pd.Series, str, n
     -------
     stamps : pandas.Series of str
         ``YYYY-MM-DD hh:mm:ss`` (with ``+hh:mm`` where the reference carries a clock),
-        rounded to the second (six decimals of a day resolve 0.09 s); a cell that is no
+        rounded to the second (six decimals of a day resolve 0.09 s); a decimal comma
+        is read ("44197,020833") where it cannot group thousands; a cell that is no
         finite number is kept as written, so the reader names it as a stamp that does
         not parse.
     strptime_format : str
@@ -113,7 +114,10 @@ def counted_stamps(text: pd.Series, time_format: str) -> tuple[pd.Series, str, n
     1904-01-01 (m); Unix time counts seconds since 1970-01-01 00:00 UTC (POSIX.1) (m).
     """
     seconds, reference, clock = counted_form(time_format)
-    numbers = pd.to_numeric(text.str.strip(), errors="coerce").to_numpy(dtype=float)
+    # a decimal comma (a spreadsheet of a comma locale): one comma before other than
+    # three digits, so that "44,197" (thousands grouped, or 44.197?) stays no number
+    plain = text.str.strip().str.replace(r"^(-?\d+),(\d{1,2}|\d{4,})$", r"\1.\2", regex=True)
+    numbers = pd.to_numeric(plain, errors="coerce").to_numpy(dtype=float)
     good = np.isfinite(numbers) & (np.abs(numbers * seconds) < 1e11)  # within ~3000 years
     whole = np.zeros(len(numbers), dtype="int64")
     whole[good] = np.round(numbers[good] * seconds).astype("int64")

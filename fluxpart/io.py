@@ -50,7 +50,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from . import digit_grouping, flux_rate_labels, interleaved_lines, later_files
+from . import digit_grouping, flux_rate_labels, interleaved_lines, later_files, unicode_names
 from ._validate import (
     markup_message,
     odd_entry,
@@ -3650,6 +3650,12 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                                  "line put above this headerless file as line 1)") from None
         raise
     lines = lines - borrowed
+    respelled = unicode_names.settings_spelling(list(raw.columns), [
+        *columns.values(), *time_columns, *flag_columns,
+        *(name for names in (other_names or {}).values() for name in names)])
+    if respelled:
+        raw = raw.rename(columns=respelled)
+        header = [respelled.get(name, name) for name in header]
     if other_names:
         raw, header = _own_names(path, raw, header, columns, other_names, renamed_in)
     try:

@@ -18,7 +18,7 @@ from test_robustness_layouts35 import _records  # invented records of 1-10 June 
 from test_robustness_layouts36 import MAPPING, SITE
 from test_robustness_layouts37 import _assert_all
 
-from fluxpart.counted_time import counted_form
+from fluxpart.counted_time import counted_form, counted_stamps
 from fluxpart.errors import TimestampError
 from fluxpart.io import read_table
 
@@ -130,3 +130,50 @@ def test_a_file_newest_first_in_civil_time_is_read_in_the_loggers_order(tmp_path
     _assert_all(read, frame, ends)
     assert any("2 of 2 input files ('" in w and "are written newest first" in w
                for w in report.warnings)
+
+
+def test_names_in_decomposed_unicode_are_the_settings_columns(tmp_path):
+    """Refused before layouts38 as look-alike characters. Unicode Standard Annex #15:
+    "ä" as U+00E4 (NFC) and as "a" + U+0308 (NFD) are canonically equivalent (m); the
+    decomposed names are computed with Python's unicodedata. A name that differs in
+    another way (a no-break space, no canonical equivalent of a space) stays refused."""
+    import unicodedata
+
+    from fluxpart.errors import MissingColumnError
+    from fluxpart.unicode_names import settings_spelling
+
+    frame, ends = _records()
+    names = {"co2": "CO2-Austausch", "sw": "Strahlung", "t_air": "Lufttemperatur",
+             "vpd": "Sättigungsdefizit", "us": "Schubspannung", "stamp": "Zeitstempel"}
+    decomposed = frame.rename(columns={k: unicodedata.normalize("NFD", v)
+                                       for k, v in names.items()})
+    path = tmp_path / "t.csv"
+    decomposed.to_csv(path, index=False)
+    assert unicodedata.normalize("NFD", "Sättigungsdefizit") != "Sättigungsdefizit"
+    mapping = {key: names[column] for key, column in MAPPING.items()}
+    read, _ = read_table(str(path), columns=mapping, units={"vpd": "kPa"}, site=SITE,
+                         time_column="Zeitstempel", time_format="%Y%m%d%H%M",
+                         time_marks="end")
+    _assert_all(read, frame, ends)
+    assert settings_spelling(["co2\u00a0net"], ["co2 net"]) == {}
+    frame.rename(columns={"co2": "co2\u00a0net"}).to_csv(path, index=False)
+    with pytest.raises(MissingColumnError, match="look-alike"):
+        read_table(str(path), columns=MAPPING | {"nee": "co2 net"}, units={"vpd": "kPa"},
+                   site=SITE, time_column="stamp", time_format="%Y%m%d%H%M",
+                   time_marks="end")
+
+
+def test_counted_stamps_with_a_decimal_comma(tmp_path):
+    """A spreadsheet of a comma locale writes day numbers "44348,020833" (Microsoft's
+    1900 date system (m)); "44,348" could group thousands and is no count."""
+    frame, ends = _records()
+    serial = [f"{(e.to_pydatetime() - datetime(1899, 12, 30)) / timedelta(days=1):.6f}"
+              .replace(".", ",") for e in ends]
+    path = tmp_path / "t.csv"
+    path.write_text(frame.assign(stamp=serial).astype(str)
+                    .apply(lambda c: c.str.replace(".", ",", regex=False))
+                    .to_csv(index=False, sep=";"))
+    read, _ = _read(path, time_format="days since 1899-12-30", delimiter=";", decimal=",")
+    _assert_all(read, frame, ends)
+    _, _, no_count = counted_stamps(pd.Series(["44,348", "44348,5"]), "days since 1899-12-30")
+    assert list(no_count) == [True, False]

@@ -866,6 +866,66 @@ def newest_first_month_files(folder):
     toml(folder, "n*.csv")
 
 
+@layout
+def decomposed_umlauts_in_header(folder):
+    """A header written on a system that stores names decomposed (NFD: a + U+0308)
+    while the site TOML is typed composed (NFC)."""
+    import unicodedata
+    raw, _ = table()
+    names = ["Zeit", "CO2-Austausch", "Strahlung", "Lufttemperatur", "Sättigungsdefizit",
+             "Schubspannung", "Bodentemperatur", "Feuchte", "Güteklasse"]
+    raw.columns = [unicodedata.normalize("NFD", n) for n in names]
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", time_column="Zeit", columns=dict(zip(MAP, names[1:], strict=True)))
+
+
+@layout
+def no_break_space_in_header_names(folder):
+    raw, _ = table()
+    names = ["time stamp", "co2 net", "sun in", "air c", "dryness", "fric vel", "soil c",
+             "humid", "co2 grade"]
+    raw.columns = [n.replace(" ", "\u00a0") for n in names]
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", time_column="time stamp",
+         columns=dict(zip(MAP, names[1:], strict=True)))
+
+
+@layout
+def undeclared_minus_6999_codes(folder):
+    raw, _ = table()
+    raw = raw.replace("-9999", "-6999")
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", missing=[])
+
+
+@layout
+def excel_serial_days_decimal_comma(folder):
+    raw, ends = table()
+    raw = raw.apply(lambda c: c.str.replace(".", ",", regex=False))
+    serial = (ends - pd.Timestamp("1899-12-30")) / pd.Timedelta("1D")
+    raw["stamp"] = [f"{v:.6f}".replace(".", ",") for v in serial]
+    write(folder / "t.csv", lines(raw, sep=";"), encoding="utf-8-sig")
+    toml(folder, "t.csv", delimiter=";", decimal=",", time_format="days since 1899-12-30")
+
+
+@layout
+def iso_utc_z_with_milliseconds(folder):
+    raw, ends = table()
+    raw["stamp"] = stamps(ends - pd.Timedelta("1h"), "%Y-%m-%dT%H:%M:%S.000Z")
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", time_format="ISO8601")
+
+
+@layout
+def year_doy_and_clock_columns(folder):
+    raw, ends = table()
+    raw.insert(0, "clock", stamps(ends, "%H:%M"))
+    raw.insert(0, "doy", stamps(ends, "%j"))
+    raw.insert(0, "year", stamps(ends, "%Y"))
+    write(folder / "t.csv", lines(raw.drop(columns="stamp")))
+    toml(folder, "t.csv", time_column=["year", "doy", "clock"], time_format="%Y %j %H:%M")
+
+
 # --------------------------------------------------------------------------- judging
 def truth(missing):
     """The example's own frame, with the records a layout leaves out missing."""
