@@ -926,6 +926,26 @@ def year_doy_and_clock_columns(folder):
     toml(folder, "t.csv", time_column=["year", "doy", "clock"], time_format="%Y %j %H:%M")
 
 
+@layout
+def units_line_states_kpa_settings_silent(folder):
+    raw, _ = table()
+    text = lines(raw)
+    text.insert(1, ",".join(UNITS))
+    write(folder / "t.csv", text)
+    toml(folder, "t.csv", rows_after_header=1, units={})
+
+
+@layout
+def bracket_unit_kpa_settings_silent(folder):
+    raw, _ = table()
+    raw.columns = [f"{n} [{u}]" if u != "-" else n for n, u in zip(raw.columns, UNITS,
+                                                                  strict=True)]
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", units={}, columns={k: f"{v} [{u}]" if u != "-" else v
+                                             for (k, v), u in zip(MAP.items(), UNITS[1:],
+                                                                  strict=True)})
+
+
 # --------------------------------------------------------------------------- judging
 def truth(missing):
     """The example's own frame, with the records a layout leaves out missing."""
