@@ -50,7 +50,14 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from . import digit_grouping, flux_rate_labels, interleaved_lines, later_files, unicode_names
+from . import (
+    digit_grouping,
+    flux_rate_labels,
+    footers,
+    interleaved_lines,
+    later_files,
+    unicode_names,
+)
 from ._validate import (
     markup_message,
     odd_entry,
@@ -3289,6 +3296,23 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
             f"{int(lines[last])}: {_shown_line(text_lines[first - 1])!r}, ...) are comment "
             "lines ending the file, a footer: dropped")
         return raw.iloc[:footer[0]].reset_index(drop=True), lines[:footer[0]]
+    words = footers.word_footer(text_lines, lines, short, last) if inner else []
+    if inner and words and inner[0] >= words[0]:
+        # lines about the file after a blank line ("Records written,17520", "End of
+        # data"): a footer of words (layouts38: "a record cut short" before)
+        first = int(lines[words[0]])
+        shown = "', '".join(_shown_line(text_lines[int(lines[row]) - 1]) for row in words[:3])
+        more = ", ..." if len(words) > 3 else ""
+        if warnings is None:
+            raise InputFileError(
+                f"input file {str(path)!r}: lines {first} to {int(lines[last])} ('{shown}'"
+                f"{more}) open with words after a blank line, a footer; delete them in a "
+                "copy of the file")
+        warnings.append(
+            f"input file {str(path)!r}: its last {len(words)} lines ({first} to "
+            f"{int(lines[last])}: '{shown}'{more}) open with words after a blank line, "
+            "a footer about the file: dropped")
+        return raw.iloc[:words[0]].reset_index(drop=True), lines[:words[0]]
     if inner:
         row = inner[0]
         changed = _changed_layout(path, text_lines, int(lines[row]), width, delimiter,
@@ -3694,6 +3718,19 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
             judged_format, time_zone, utc_offset, source)
         if zone_said:
             raise TimestampError(zone_said)
+    summary = footers.summary_rows(stamp_text, time_columns)
+    if summary:
+        # a spreadsheet's statistics under the records ("mean", "max"): no stamp, no
+        # record (layouts38; refused before, naming them)
+        kept = len(raw) - summary
+        shown = ", ".join(repr(word) for word in dict.fromkeys(stamp_text.iloc[kept:]
+                                                               .str.strip()))
+        warnings.append(f"input file {source!r}: its last {summary} line(s) ({int(lines[kept])}"
+                        f" to {int(lines[-1])}: {shown}) have a word for a stamp, a summary "
+                        "under the records (a spreadsheet's statistics?): dropped")
+        raw = raw.iloc[:kept].reset_index(drop=True)
+        stamp_text = stamp_text.iloc[:kept].reset_index(drop=True)
+        lines = lines[:kept]
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)

@@ -98,7 +98,7 @@ _ZERO_DATE = re.compile(r"\s*0{2,4}[-./]00?[-./]0{2,4}(?!\d)")
 #: Words for no value written in a time column: SQL's NULL and its dump form \N (MySQL
 #: and PostgreSQL text exports (m)), NaN/NaT/NA/None of numerical and statistics
 #: programs, #N/A of spreadsheets (common practice).
-_NULL_STAMP = re.compile(r"(?i)\s*(?:null|\\n|none|nan|nat|na|n/a|#n/a|<na>)\s*")
+NULL_STAMP = re.compile(r"(?i)\s*(?:null|\\n|none|nan|nat|na|n/a|#n/a|<na>)\s*")
 _HOUR_24 = (
     (re.compile(r"(?<!\d)24:00(:00)?(?!\d)"), lambda m: "00:00" + (m[1] or "")),
     (re.compile(r"(?<!\d)24(00)$"), lambda m: "00" + m[1]),
@@ -599,30 +599,6 @@ _COUNTED_FORMS = {
 
 def _other_form(other_name: str) -> str:
     return f" ({setting_text(_COUNTED_FORMS[other_name])} for the other reading)"
-
-
-def _summary_lines(text: pd.Series, failed: np.ndarray) -> str:
-    """The cause where every stamp that fails stands after the last one that parses and
-    holds a word without digits ("mean", "Total", "SUM"): a spreadsheet's summary lines
-    under the records, whose values are statistics of the column, not a record. Else ''.
-
-    References
-    ----------
-    Spreadsheets write a column's statistics in a row under its values (AVERAGE, SUM;
-    common practice).
-    """
-    if failed.all() or not failed.any():
-        return ""
-    where = np.flatnonzero(failed)
-    if where[0] < np.flatnonzero(~failed)[-1]:
-        return ""
-    words = text.iloc[where].str.strip()
-    if not words.str.fullmatch(r"[^\W\d_][^\d]*").all():
-        return ""
-    shown = ", ".join(repr(word) for word in dict.fromkeys(words))
-    return (f"{len(where)} line(s) after the last record ({shown}) are a summary (a "
-            "spreadsheet's statistics under the records), not records: delete them in a "
-            "copy of the file")
 
 
 def _numeric_clock(text: pd.Series) -> str:
@@ -1445,12 +1421,10 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     # again) put one under every line (layouts36)
                     f"{'' if skip == 1 else '(units, processing or blank lines) '}under the "
                     f"header, set [input] rows_after_header = {skip}")
-        elif _NULL_STAMP.fullmatch(text.iloc[first]) and not failed.all():
+        elif NULL_STAMP.fullmatch(text.iloc[first]) and not failed.all():
             # a database's or a statistics program's word for no value in the time column
             hint = ("; a record without a date and time (an empty stamp or a missing "
                     "code): give it its stamp or delete that line in a copy of the file")
-        elif (found := _summary_lines(text, failed)):
-            hint = "; " + found
         elif _NO_DATE.fullmatch(text.iloc[first]) and not failed.all():
             # a record whose stamp is empty or a bare number ("-9999"): a row written
             # while the logger had no clock, or a missing code in the time column

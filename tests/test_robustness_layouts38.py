@@ -177,3 +177,40 @@ def test_counted_stamps_with_a_decimal_comma(tmp_path):
     _assert_all(read, frame, ends)
     _, _, no_count = counted_stamps(pd.Series(["44,348", "44348,5"]), "days since 1899-12-30")
     assert list(no_count) == [True, False]
+
+
+@pytest.mark.parametrize("footer, dropped", [
+    # lines about the file after a blank line: "a record cut short" before layouts38
+    (["", "Records written,480", "Logger program,half_hour_v3", "End of data"],
+     "its last 3 lines (483 to 485: 'Records written,480', 'Logger program,half_hour_v3', "
+     "'End of data') open with words after a blank line"),
+    # a spreadsheet's statistics under the records: "are a summary" and refused before
+    (["mean,1,2,3,4,5", "max,6,7,8,9,10"],
+     "its last 2 line(s) (482 to 483: 'mean', 'max') have a word for a stamp"),
+])
+def test_a_footer_of_words_or_statistics_is_dropped_and_named(tmp_path, footer, dropped):
+    frame, ends = _records()
+    text = frame.to_csv(index=False) + "\n".join(footer) + "\n"
+    path = tmp_path / "t.csv"
+    path.write_text(text)
+    read, report = _read(path)
+    _assert_all(read, frame, ends)
+    assert any(dropped in w for w in report.warnings), report.warnings
+
+
+def test_words_without_a_blank_line_or_among_the_records_stay_refused(tmp_path):
+    """A short line of words right under the records is judged as before (two such lines
+    before the last: a record cut short or a footer, refused); a word stamp among the
+    records is no summary under them."""
+    from fluxpart.errors import InputFileError
+
+    frame, _ = _records()
+    path = tmp_path / "t.csv"
+    path.write_text(frame.to_csv(index=False) + "Records written,480\nEnd,of,data\nEnd\n")
+    with pytest.raises(InputFileError, match="a record cut short"):
+        _read(path)
+    table = frame.astype(object)
+    table.loc[100, "stamp"] = "mean"
+    path.write_text(table.to_csv(index=False))
+    with pytest.raises(TimestampError, match="'mean', which does not match"):
+        _read(path)
