@@ -3726,8 +3726,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         shown = ", ".join(repr(word) for word in dict.fromkeys(stamp_text.iloc[kept:]
                                                                .str.strip()))
         warnings.append(f"input file {source!r}: its last {summary} line(s) ({int(lines[kept])}"
-                        f" to {int(lines[-1])}: {shown}) have a word for a stamp, a summary "
-                        "under the records (a spreadsheet's statistics?): dropped")
+                        f" to {int(lines[-1])}: {shown}) have a word for a stamp, no record (a "
+                        "footer, or a spreadsheet's statistics under the records): dropped")
         raw = raw.iloc[:kept].reset_index(drop=True)
         stamp_text = stamp_text.iloc[:kept].reset_index(drop=True)
         lines = lines[:kept]

@@ -186,7 +186,7 @@ def test_counted_stamps_with_a_decimal_comma(tmp_path):
      "'End of data') open with words after a blank line"),
     # a spreadsheet's statistics under the records: "are a summary" and refused before
     (["mean,1,2,3,4,5", "max,6,7,8,9,10"],
-     "its last 2 line(s) (482 to 483: 'mean', 'max') have a word for a stamp"),
+     "its last 2 line(s) (482 to 483: 'mean', 'max') have a word for a stamp, no record"),
 ])
 def test_a_footer_of_words_or_statistics_is_dropped_and_named(tmp_path, footer, dropped):
     frame, ends = _records()
