@@ -106,6 +106,48 @@ def stamps(ends, fmt):
     return list(ends.dt.strftime(fmt))
 
 
+def serial_days(ends):
+    """Spreadsheet day numbers (1900 date system), six decimals."""
+    return [f"{v:.6f}" for v in (ends - pd.Timestamp("1899-12-30")) / pd.Timedelta("1D")]
+
+
+def unix_seconds(ends):
+    return [str(v) for v in (ends - pd.Timestamp("1970-01-01")) // pd.Timedelta("1s")]
+
+
+def restamped(folder, written, read=None, shift="0h", **inputs):
+    """The example with its stamps written as `written` (a strftime format, or a function
+    of the stamps) `shift` earlier, read as `read`."""
+    raw, ends = table()
+    ends = ends - pd.Timedelta(shift)
+    raw["stamp"] = written(ends) if callable(written) else stamps(ends, written)
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", time_format=read or written, **inputs)
+
+
+def split_stamps(folder, fields, time_format, cell=str, sep=",", name="t.csv", **inputs):
+    """The example with its stamp written over columns (name -> strftime format), each
+    cell as `cell` writes it."""
+    raw, ends = table()
+    for column, written in reversed(fields.items()):
+        raw.insert(0, column, [cell(s) for s in stamps(ends, written)])
+    write(folder / name, lines(raw.drop(columns="stamp"), sep=sep))
+    toml(folder, name, time_column=list(fields), time_format=time_format, **inputs)
+
+
+def named_with_units(folder, form, **inputs):
+    """The example with each header name carrying its unit as `form` writes it."""
+    raw, _ = table()
+
+    def named(name, unit):
+        return name if unit == "-" else form.format(name, unit)
+
+    raw.columns = [named(n, u) for n, u in zip(raw.columns, UNITS, strict=True)]
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", columns={k: named(v, u) for (k, v), u in
+                                   zip(MAP.items(), UNITS[1:], strict=True)}, **inputs)
+
+
 def months(raw, ends):
     return [(month, raw[(ends - pd.Timedelta("30min")).dt.month == month])
             for month in range(1, 13)]
@@ -117,20 +159,12 @@ def months(raw, ends):
 
 @layout
 def units_in_brackets(folder):
-    raw, _ = table()
-    raw.columns = [f"{n} [{u}]" if u != "-" else n for n, u in zip(raw.columns, UNITS, strict=True)]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", columns={k: f"{v} [{u}]" if u != "-" else v for (k, v), u in
-                                   zip(MAP.items(), UNITS[1:], strict=True)})
+    named_with_units(folder, "{} [{}]")
 
 
 @layout
 def units_in_parentheses(folder):
-    raw, _ = table()
-    raw.columns = [f"{n} ({u})" if u != "-" else n for n, u in zip(raw.columns, UNITS, strict=True)]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", columns={k: f"{v} ({u})" if u != "-" else v for (k, v), u in
-                                   zip(MAP.items(), UNITS[1:], strict=True)})
+    named_with_units(folder, "{} ({})")
 
 
 @layout
@@ -157,23 +191,13 @@ def station_block_names_units_aggregation(folder):
 
 @layout
 def year_doy_hhmm_columns(folder):
-    raw, ends = table()
-    raw.insert(0, "hhmm", stamps(ends, "%H%M"))
-    raw.insert(0, "doy", stamps(ends, "%j"))
-    raw.insert(0, "yr", stamps(ends, "%Y"))
-    write(folder / "t.csv", lines(raw.drop(columns="stamp")))
-    toml(folder, "t.csv", time_column=["yr", "doy", "hhmm"], time_format="%Y %j %H%M")
+    split_stamps(folder, {"yr": "%Y", "doy": "%j", "hhmm": "%H%M"}, "%Y %j %H%M")
 
 
 @layout
 def year_doy_hhmm_unpadded_doy(folder):
-    raw, ends = table()
-    raw.insert(0, "hhmm", [str(int(s)) for s in stamps(ends, "%H%M")])
-    raw.insert(0, "doy", [str(int(s)) for s in stamps(ends, "%j")])
-    raw.insert(0, "yr", stamps(ends, "%Y"))
-    write(folder / "t.txt", lines(raw.drop(columns="stamp"), sep="\t"))
-    toml(folder, "t.txt", time_column=["yr", "doy", "hhmm"], time_format="%Y %j %H%M",
-         delimiter="\t")
+    split_stamps(folder, {"yr": "%Y", "doy": "%j", "hhmm": "%H%M"}, "%Y %j %H%M", cell=lambda s: str(int(s)), sep="\t",
+                 name="t.txt", delimiter="\t")
 
 
 @layout
@@ -212,36 +236,26 @@ def tabs_mixed_with_spaces(folder):
 
 @layout
 def iso_stamps_with_seconds(folder):
-    raw, ends = table()
-    raw["stamp"] = stamps(ends, "%Y-%m-%d %H:%M:%S")
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M:%S")
+    restamped(folder, "%Y-%m-%d %H:%M:%S")
 
 
 @layout
 def fractional_seconds(folder):
-    raw, ends = table()
-    raw["stamp"] = stamps(ends, "%Y-%m-%dT%H:%M:%S.000")
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="%Y-%m-%dT%H:%M:%S.%f")
+    restamped(folder, "%Y-%m-%dT%H:%M:%S.000", "%Y-%m-%dT%H:%M:%S.%f")
 
 
 @layout
 def fractional_seconds_jitter(folder):
-    raw, ends = table()
-    jitter = pd.to_timedelta(np.random.default_rng(38).integers(-900, 900, len(ends)),
+    jitter = pd.to_timedelta(np.random.default_rng(38).integers(-900, 900, 17520),
                              unit="ms")
-    raw["stamp"] = [s[:-3] for s in stamps(ends + jitter, "%Y-%m-%d %H:%M:%S.%f")]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M:%S.%f")
+    restamped(folder, lambda ends: [s[:-3] for s in stamps(ends + jitter,
+                                                           "%Y-%m-%d %H:%M:%S.%f")],
+              "%Y-%m-%d %H:%M:%S.%f")
 
 
 @layout
 def twelve_hour_clock_day_first_seconds(folder):
-    raw, ends = table()
-    raw["stamp"] = stamps(ends, "%d/%m/%Y %I:%M:%S %p")
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="%d/%m/%Y %I:%M:%S %p")
+    restamped(folder, "%d/%m/%Y %I:%M:%S %p")
 
 
 @layout
@@ -255,18 +269,13 @@ def twelve_hour_clock_two_columns_unpadded(folder):
 
 @layout
 def day_first_unpadded(folder):
-    raw, ends = table()
-    raw["stamp"] = [f"{t.day}/{t.month}/{t.year} {t.hour}:{t.minute:02d}" for t in ends]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="%d/%m/%Y %H:%M")
+    restamped(folder, lambda ends: [f"{t.day}/{t.month}/{t.year} {t.hour}:{t.minute:02d}"
+                                    for t in ends], "%d/%m/%Y %H:%M")
 
 
 @layout
 def day_first_file_month_first_format(folder):
-    raw, ends = table()
-    raw["stamp"] = stamps(ends, "%d/%m/%Y %H:%M")
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="%m/%d/%Y %H:%M")
+    restamped(folder, "%d/%m/%Y %H:%M", "%m/%d/%Y %H:%M")
 
 
 @layout
@@ -284,11 +293,7 @@ def day_first_file_first_twelve_days_month_first_format(folder):
 
 @layout
 def excel_serial_days(folder):
-    raw, ends = table()
-    serial = (ends - pd.Timestamp("1899-12-30")) / pd.Timedelta("1D")
-    raw["stamp"] = [f"{v:.6f}" for v in serial]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M")
+    restamped(folder, serial_days, "%Y-%m-%d %H:%M")
 
 
 @layout
@@ -460,18 +465,12 @@ def whole_days_without_lines(folder):
 
 @layout
 def stamps_in_utc_with_zone_name(folder):
-    raw, ends = table()
-    raw["stamp"] = stamps(ends - pd.Timedelta("1h"), "%Y-%m-%d %H:%M UTC")
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M %Z")
+    restamped(folder, "%Y-%m-%d %H:%M UTC", "%Y-%m-%d %H:%M %Z", shift="1h")
 
 
 @layout
 def stamps_iso_offset_local_time(folder):
-    raw, ends = table()
-    raw["stamp"] = stamps(ends, "%Y-%m-%dT%H:%M:%S+01:00")
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="ISO8601")
+    restamped(folder, "%Y-%m-%dT%H:%M:%S+01:00", "ISO8601")
 
 
 @layout
@@ -557,11 +556,7 @@ def stamp_column_in_the_middle_and_quoted_notes(folder):
 
 @layout
 def month_name_dates(folder):
-    raw, ends = table()
-    raw.insert(0, "hm", stamps(ends, "%H:%M"))
-    raw.insert(0, "date", stamps(ends, "%d-%b-%Y"))
-    write(folder / "t.csv", lines(raw.drop(columns="stamp")))
-    toml(folder, "t.csv", time_column=["date", "hm"], time_format="%d-%b-%Y %H:%M")
+    split_stamps(folder, {"date": "%d-%b-%Y", "hm": "%H:%M"}, "%d-%b-%Y %H:%M")
 
 
 @layout
@@ -583,12 +578,8 @@ def whitespace_file_with_quoted_stamps(folder):
 
 @layout
 def whitespace_date_and_time_columns(folder):
-    raw, ends = table()
-    raw.insert(0, "hm", stamps(ends, "%H:%M"))
-    raw.insert(0, "date", stamps(ends, "%Y/%m/%d"))
-    write(folder / "t.dat", lines(raw.drop(columns="stamp"), sep="   "))
-    toml(folder, "t.dat", delimiter="whitespace", time_column=["date", "hm"],
-         time_format="%Y/%m/%d %H:%M")
+    split_stamps(folder, {"date": "%Y/%m/%d", "hm": "%H:%M"}, "%Y/%m/%d %H:%M", sep="   ",
+                 name="t.dat", delimiter="whitespace")
 
 
 @layout
@@ -722,12 +713,7 @@ def whitespace_file_quoted_names_with_blanks(folder):
 
 @layout
 def year_doy_hhmm_written_as_floats(folder):
-    raw, ends = table()
-    raw.insert(0, "hhmm", [f"{int(s)}.0" for s in stamps(ends, "%H%M")])
-    raw.insert(0, "doy", [f"{int(s)}.0" for s in stamps(ends, "%j")])
-    raw.insert(0, "yr", [f"{s}.0" for s in stamps(ends, "%Y")])
-    write(folder / "t.csv", lines(raw.drop(columns="stamp")))
-    toml(folder, "t.csv", time_column=["yr", "doy", "hhmm"], time_format="%Y %j %H%M")
+    split_stamps(folder, {"yr": "%Y", "doy": "%j", "hhmm": "%H%M"}, "%Y %j %H%M", cell=lambda s: f"{int(s)}.0")
 
 
 @layout
@@ -763,11 +749,10 @@ def month_files_order_changes_with_units_line(folder):
 
 @layout
 def civil_time_twelve_hour_clock(folder):
-    raw, ends = table()
-    local = (ends.dt.tz_localize("Etc/GMT-1").dt.tz_convert("Europe/Berlin"))
-    raw["stamp"] = list(local.dt.strftime("%m/%d/%Y %I:%M %p"))
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="%m/%d/%Y %I:%M %p", time_zone="Europe/Berlin")
+    restamped(folder, lambda ends: list(ends.dt.tz_localize("Etc/GMT-1")
+                                        .dt.tz_convert("Europe/Berlin")
+                                        .dt.strftime("%m/%d/%Y %I:%M %p")),
+              "%m/%d/%Y %I:%M %p", time_zone="Europe/Berlin")
 
 
 @layout
@@ -809,36 +794,23 @@ def utf8_bom_on_every_month_file_and_cat_joined(folder):
 
 @layout
 def apostrophe_text_marks(folder):
-    raw, ends = table()
-    raw["stamp"] = ["'" + s for s in stamps(ends, "%Y-%m-%d %H:%M")]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M")
+    restamped(folder, lambda ends: ["'" + s for s in stamps(ends, "%Y-%m-%d %H:%M")],
+              "%Y-%m-%d %H:%M")
 
 
 @layout
 def weekday_in_stamps(folder):
-    raw, ends = table()
-    raw["stamp"] = stamps(ends, "%a %d %b %Y %H:%M")
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="%a %d %b %Y %H:%M")
+    restamped(folder, "%a %d %b %Y %H:%M")
 
 
 @layout
 def excel_serial_days_declared(folder):
-    raw, ends = table()
-    serial = (ends - pd.Timestamp("1899-12-30")) / pd.Timedelta("1D")
-    raw["stamp"] = [f"{v:.6f}" for v in serial]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="days since 1899-12-30")
+    restamped(folder, serial_days, "days since 1899-12-30")
 
 
 @layout
 def unix_seconds_declared_utc(folder):
-    raw, ends = table()
-    raw["stamp"] = [str(v) for v in (ends - pd.Timedelta("1h") - pd.Timestamp("1970-01-01"))
-                    // pd.Timedelta("1s")]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="seconds since 1970-01-01 00:00:00 UTC")
+    restamped(folder, unix_seconds, "seconds since 1970-01-01 00:00:00 UTC", shift="1h")
 
 
 @layout
@@ -910,20 +882,12 @@ def excel_serial_days_decimal_comma(folder):
 
 @layout
 def iso_utc_z_with_milliseconds(folder):
-    raw, ends = table()
-    raw["stamp"] = stamps(ends - pd.Timedelta("1h"), "%Y-%m-%dT%H:%M:%S.000Z")
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="ISO8601")
+    restamped(folder, "%Y-%m-%dT%H:%M:%S.000Z", "ISO8601", shift="1h")
 
 
 @layout
 def year_doy_and_clock_columns(folder):
-    raw, ends = table()
-    raw.insert(0, "clock", stamps(ends, "%H:%M"))
-    raw.insert(0, "doy", stamps(ends, "%j"))
-    raw.insert(0, "year", stamps(ends, "%Y"))
-    write(folder / "t.csv", lines(raw.drop(columns="stamp")))
-    toml(folder, "t.csv", time_column=["year", "doy", "clock"], time_format="%Y %j %H:%M")
+    split_stamps(folder, {"year": "%Y", "doy": "%j", "clock": "%H:%M"}, "%Y %j %H:%M")
 
 
 @layout
@@ -937,13 +901,7 @@ def units_line_states_kpa_settings_silent(folder):
 
 @layout
 def bracket_unit_kpa_settings_silent(folder):
-    raw, _ = table()
-    raw.columns = [f"{n} [{u}]" if u != "-" else n for n, u in zip(raw.columns, UNITS,
-                                                                  strict=True)]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", units={}, columns={k: f"{v} [{u}]" if u != "-" else v
-                                             for (k, v), u in zip(MAP.items(), UNITS[1:],
-                                                                  strict=True)})
+    named_with_units(folder, "{} [{}]", units={})
 
 
 # --------------------------------------------------------------------------- judging
