@@ -148,6 +148,24 @@ def named_with_units(folder, form, **inputs):
                                    zip(MAP.items(), UNITS[1:], strict=True)}, **inputs)
 
 
+def overlapping_months(folder, before, after):
+    """Month files, each with `before` records of the month before and `after` of the next."""
+    raw, ends = table()
+    month = (ends - pd.Timedelta("30min")).dt.month.to_numpy()
+    for m in range(1, 13):
+        rows = np.flatnonzero(month == m)
+        rows = np.arange(max(rows[0] - before, 0), min(rows[-1] + 1 + after, len(raw)))
+        write(folder / f"q_{m:02d}.csv", lines(raw.iloc[rows]))
+    toml(folder, "q_*.csv")
+
+
+def edited(folder, edit, ending="\n", **inputs):
+    """The example's lines as `edit(text, raw)` changes them, read with `inputs`."""
+    raw, _ = table()
+    write(folder / "t.csv", edit(lines(raw), raw), ending=ending)
+    toml(folder, "t.csv", **inputs)
+
+
 def months(raw, ends):
     return [(month, raw[(ends - pd.Timedelta("30min")).dt.month == month])
             for month in range(1, 13)]
@@ -169,24 +187,24 @@ def units_in_parentheses(folder):
 
 @layout
 def units_line_and_aggregation_line(folder):
-    raw, _ = table()
-    text = lines(raw)
-    text[1:1] = [",".join(UNITS), ",".join(["", "Avg", "Avg", "Avg", "Avg", "Avg", "Smp",
-                                            "Avg", "Max"])]
-    write(folder / "t.csv", text)
-    toml(folder, "t.csv", rows_after_header=2)
+    def edit(text, raw):
+        text[1:1] = [",".join(UNITS), ",".join(["", "Avg", "Avg", "Avg", "Avg", "Avg", "Smp",
+                                                "Avg", "Max"])]
+        return text
+
+    edited(folder, edit, rows_after_header=2)
 
 
 @layout
 def station_block_names_units_aggregation(folder):
-    raw, _ = table()
-    text = lines(raw)
-    text[0:0] = ["Station,Quillmoor T1 (fictional),Lat 49.3,Lon 10.2",
-                 "Program,co2_half_hour_v3,Signature,40871", "Table,half_hour,,"]
-    text[4:4] = [",".join(UNITS), ",".join(["TS", "Avg", "Avg", "Avg", "Avg", "Avg", "Smp",
-                                            "Avg", "Max"])]
-    write(folder / "t.csv", text, ending="\r\n")
-    toml(folder, "t.csv", rows_before_header=3, rows_after_header=2)
+    def edit(text, raw):
+        text[0:0] = ["Station,Quillmoor T1 (fictional),Lat 49.3,Lon 10.2",
+                     "Program,co2_half_hour_v3,Signature,40871", "Table,half_hour,,"]
+        text[4:4] = [",".join(UNITS), ",".join(["TS", "Avg", "Avg", "Avg", "Avg", "Avg", "Smp",
+                                                "Avg", "Max"])]
+        return text
+
+    edited(folder, edit, ending="\r\n", rows_before_header=3, rows_after_header=2)
 
 
 @layout
@@ -320,11 +338,11 @@ def mixed_missing_codes_undeclared(folder):
 
 @layout
 def trailing_delimiter_on_records_only(folder):
-    raw, _ = table()
-    text = lines(raw)
-    text[1:] = [line + "," for line in text[1:]]
-    write(folder / "t.csv", text)
-    toml(folder, "t.csv")
+    def edit(text, raw):
+        text[1:] = [line + "," for line in text[1:]]
+        return text
+
+    edited(folder, edit)
 
 
 @layout
@@ -393,24 +411,12 @@ def utf16_big_endian_without_bom(folder):
 
 @layout
 def month_files_overlapping_one_record(folder):
-    raw, ends = table()
-    month = (ends - pd.Timedelta("30min")).dt.month.to_numpy()
-    for m in range(1, 13):
-        rows = np.flatnonzero(month == m)
-        rows = np.arange(max(rows[0] - 1, 0), min(rows[-1] + 2, len(raw)))
-        write(folder / f"q_{m:02d}.csv", lines(raw.iloc[rows]))
-    toml(folder, "q_*.csv")
+    overlapping_months(folder, 1, 1)
 
 
 @layout
 def month_files_overlapping_one_day(folder):
-    raw, ends = table()
-    month = (ends - pd.Timedelta("30min")).dt.month.to_numpy()
-    for m in range(1, 13):
-        rows = np.flatnonzero(month == m)
-        rows = np.arange(max(rows[0] - 48, 0), rows[-1] + 1)
-        write(folder / f"q_{m:02d}.csv", lines(raw.iloc[rows]))
-    toml(folder, "q_*.csv")
+    overlapping_months(folder, 48, 0)
 
 
 @layout
@@ -535,12 +541,12 @@ def plus_signs_and_exponents(folder):
 
 @layout
 def blank_lines_after_header_and_at_end(folder):
-    raw, _ = table()
-    text = lines(raw)
-    text[1:1] = [""]
-    text += ["", "", ""]
-    write(folder / "t.csv", text)
-    toml(folder, "t.csv")
+    def edit(text, raw):
+        text[1:1] = [""]
+        text += ["", "", ""]
+        return text
+
+    edited(folder, edit)
 
 
 @layout
@@ -561,11 +567,11 @@ def month_name_dates(folder):
 
 @layout
 def quoted_header_plain_records_crlf(folder):
-    raw, _ = table()
-    text = lines(raw)
-    text[0] = ",".join(f'"{n}"' for n in raw.columns)
-    write(folder / "t.csv", text, ending="\r\n")
-    toml(folder, "t.csv")
+    def edit(text, raw):
+        text[0] = ",".join(f'"{n}"' for n in raw.columns)
+        return text
+
+    edited(folder, edit, ending="\r\n")
 
 
 @layout
@@ -603,11 +609,11 @@ def duplicate_column_names(folder):
 
 @layout
 def header_names_padded_with_spaces(folder):
-    raw, _ = table()
-    text = lines(raw)
-    text[0] = ", ".join(f" {n} " for n in raw.columns)
-    write(folder / "t.csv", text)
-    toml(folder, "t.csv")
+    def edit(text, raw):
+        text[0] = ", ".join(f" {n} " for n in raw.columns)
+        return text
+
+    edited(folder, edit)
 
 
 @layout
@@ -648,11 +654,11 @@ def start_stamps_month_files_with_unit_rows(folder):
 
 @layout
 def units_line_in_brackets_second_line(folder):
-    raw, _ = table()
-    text = lines(raw)
-    text.insert(1, ",".join(f"[{u}]" for u in UNITS))
-    write(folder / "t.csv", text)
-    toml(folder, "t.csv", rows_after_header=1)
+    def edit(text, raw):
+        text.insert(1, ",".join(f"[{u}]" for u in UNITS))
+        return text
+
+    edited(folder, edit, rows_after_header=1)
 
 
 @layout
@@ -767,20 +773,20 @@ def utc_column_named_so_with_zone_set(folder):
 
 @layout
 def trailing_delimiters_header_units_and_records_differ(folder):
-    raw, _ = table()
-    text = lines(raw)
-    text.insert(1, ",".join(UNITS))
-    text = [text[0] + ",", text[1]] + [line + ",," for line in text[2:]]
-    write(folder / "t.csv", text)
-    toml(folder, "t.csv", rows_after_header=1)
+    def edit(text, raw):
+        text.insert(1, ",".join(UNITS))
+        text = [text[0] + ",", text[1]] + [line + ",," for line in text[2:]]
+        return text
+
+    edited(folder, edit, rows_after_header=1)
 
 
 @layout
 def last_record_written_twice(folder):
-    raw, _ = table()
-    text = lines(raw)
-    write(folder / "t.csv", text + [text[-1]])
-    toml(folder, "t.csv")
+    def edit(text, raw):
+        return text + [text[-1]]
+
+    edited(folder, edit)
 
 
 @layout
@@ -892,11 +898,11 @@ def year_doy_and_clock_columns(folder):
 
 @layout
 def units_line_states_kpa_settings_silent(folder):
-    raw, _ = table()
-    text = lines(raw)
-    text.insert(1, ",".join(UNITS))
-    write(folder / "t.csv", text)
-    toml(folder, "t.csv", rows_after_header=1, units={})
+    def edit(text, raw):
+        text.insert(1, ",".join(UNITS))
+        return text
+
+    edited(folder, edit, rows_after_header=1, units={})
 
 
 @layout
