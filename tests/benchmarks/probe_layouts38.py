@@ -314,26 +314,25 @@ def excel_serial_days(folder):
     restamped(folder, serial_days, "%Y-%m-%d %H:%M")
 
 
-@layout
-def mixed_missing_codes_declared(folder):
+def mixed_missing_codes(folder, **inputs):
+    """The example's -9999 cells written in turn as six spellings of no value."""
     raw, _ = table()
     codes = ["NaN", "-9999.0", "#N/A", "--", "", "NA"]
     for j, column in enumerate(raw.columns[1:8]):
         at = raw[column] == "-9999"
         raw.loc[at, column] = [codes[(i + j) % 6] for i in range(int(at.sum()))]
     write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", missing=[-9999, "#N/A", "--", "NA"])
+    toml(folder, "t.csv", **inputs)
+
+
+@layout
+def mixed_missing_codes_declared(folder):
+    mixed_missing_codes(folder, missing=[-9999, "#N/A", "--", "NA"])
 
 
 @layout
 def mixed_missing_codes_undeclared(folder):
-    raw, _ = table()
-    codes = ["NaN", "-9999.0", "#N/A", "--", "", "NA"]
-    for j, column in enumerate(raw.columns[1:8]):
-        at = raw[column] == "-9999"
-        raw.loc[at, column] = [codes[(i + j) % 6] for i in range(int(at.sum()))]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    mixed_missing_codes(folder)
 
 
 @layout
