@@ -11,7 +11,9 @@ TOML as the README's "Your own site" describes, and then
 1. reads it in process (``read_site_config(...).read()``) and compares the frame with the
    example's own reading value for value and stamp for stamp (a layout that drops records
    compares with the example's frame with those records missing);
-2. runs ``fluxpart check`` and ``fluxpart run`` on it in a fresh process; where the frame
+2. runs ``fluxpart check`` and ``fluxpart run`` on it in a fresh process (a refusal is
+   exit 2 with one ``error:`` line, or for ``check`` a problem marked "run stops" among
+   those it lists, exit 1, as it reports unit and range refusals); where the frame
    is the example's, ``timeseries.parquet`` and ``annual.parquet`` must hold the example's
    run's values (their metadata name the site and config, which differ).
 
@@ -965,7 +967,9 @@ def judge(name, folder, base_tables, cli=True):
         if "Traceback" in err or code not in (0, 1, 2):
             return "CRASH", f"{verb} exit {code}: {err.strip().splitlines()[-1]}"
         errors = [line for line in err.splitlines() if line.startswith("error:")]
-        if state[0] == "refused" and (code != 2 or len(errors) != 1):
+        # check lists a unit or range refusal among its problems (exit 1, "run stops")
+        listed = verb == "check" and code == 1 and "(run stops)" in out
+        if state[0] == "refused" and not listed and (code != 2 or len(errors) != 1):
             return "CRASH", f"{verb} exit {code} with {len(errors)} error line(s)"
         if state[0] == "right" and verb == "run":
             if code != 0:
