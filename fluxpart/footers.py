@@ -68,6 +68,8 @@ def summary_rows(stamp_text: pd.Series, time_columns) -> int:
     Spreadsheets write a column's statistics in a row under its values (AVERAGE, SUM;
     common practice).
     """
+    if not len(stamp_text) or not _WORD_STAMP.fullmatch(str(stamp_text.iloc[-1]).strip()):
+        return 0                 # the usual file: its last stamp is a stamp (one match)
     text = stamp_text.astype(str).str.strip()
     header = " ".join(time_columns)
     words = (text.str.fullmatch(_WORD_STAMP.pattern).to_numpy() & (text != header).to_numpy()
