@@ -911,6 +911,14 @@ def bracket_unit_kpa_settings_silent(folder):
     named_with_units(folder, "{} [{}]", units={})
 
 
+@layout
+def excel_serial_days_of_civil_time(folder):
+    restamped(folder, lambda ends: serial_days(ends.dt.tz_localize("Etc/GMT-1")
+                                               .dt.tz_convert("Europe/Berlin")
+                                               .dt.tz_localize(None)),
+              "days since 1899-12-30", time_zone="Europe/Berlin")
+
+
 # --------------------------------------------------------------------------- judging
 def truth(missing):
     """The example's own frame, with the records a layout leaves out missing."""
