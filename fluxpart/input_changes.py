@@ -20,6 +20,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from .counted_time import counted_form
 from .errors import FluxpartError
 from .variables import VARIABLES
 
@@ -55,7 +56,8 @@ def _file_stamp(start, reader, interval: pd.Timedelta) -> str:
     (``[input] time_marks``, ``time_zone``), writes another time for the same record, so an
     auditor looking for the edited line finds it by this one. Empty where the file's
     stamp is the start itself, or where its stamps carry their own UTC offset or zone
-    (``%z``, ``%Z``, ``ISO8601``, a closing ``Z``), which the reader converted.
+    (``%z``, ``%Z``, ``ISO8601``, a closing ``Z``), which the reader converted, or where
+    they count time since a date (``"days since 1899-12-30"``: a number, no stamp).
     """
     share = _MARK_SHARE.get(getattr(reader, "time_marks", None))
     zone = getattr(reader, "time_zone", None)
@@ -63,8 +65,8 @@ def _file_stamp(start, reader, interval: pd.Timedelta) -> str:
     if share is None or not isinstance(interval, pd.Timedelta) or pd.isna(interval):
         return ""
     if "%z" in time_format or "%Z" in time_format or time_format.upper() == "ISO8601" \
-            or time_format.endswith("Z"):
-        return ""
+            or time_format.endswith("Z") or counted_form(time_format) is not None:
+        return ""      # converted by the reader, or a count of time (layouts38), no stamp
     if share == 0.0 and zone is None:
         return ""
     stamp = pd.Timestamp(start) + share * interval

@@ -50,7 +50,14 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from . import digit_grouping, flux_rate_labels, interleaved_lines, later_files
+from . import (
+    digit_grouping,
+    flux_rate_labels,
+    footers,
+    interleaved_lines,
+    later_files,
+    unicode_names,
+)
 from ._validate import (
     markup_message,
     odd_entry,
@@ -100,6 +107,7 @@ from .timestamps import (
     join_time_columns,
     offsets_in_stamps,
     parse_stamps,
+    written_newest_first,
 )
 from .unit_checks import (
     _FLAG_REFUSE,
@@ -263,7 +271,8 @@ class ReadReport:
         What was done to stamps: ``hour_24`` (read as midnight of the next day),
         ``utc_offset`` (converted from stamps carrying an offset), ``daylight_saving``
         (moved from civil to standard time), ``time_zone`` (the zone, if any);
-        ``rounded_to_minute``, ``date_only`` (midnight written as the date alone) and
+        ``rounded_to_minute``, ``date_only`` (midnight written as the date alone),
+        ``whole_numbers`` (fields written "2021.0" read without the point; layouts38) and
         ``utc_zone`` (stamps of a UTC zone moved to the site's offset) only where they
         happened.
     nonfinite_cells : dict
@@ -963,6 +972,13 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     header_rows = _header_rows_warning(parts)
     if header_rows:
         warnings.append(header_rows)
+    newest = [part["source"] for part in parts if part["newest_first"]]
+    if newest:
+        warnings.append(
+            (f"input file {newest[0]!r} is" if len(parts) == 1 else
+             f"{len(newest)} of {len(parts)} input files ({_file_list(newest)}) are")
+            + " written newest first (the stamps go back in time from line to line): read "
+            "oldest first")
     warnings.extend(_labelled_unit_warnings(parts, mapping, units))
     parts, absent, joined = _fill_lacking(parts, mapping, time_columns, warnings)
     combined = _combine(parts)
@@ -3280,6 +3296,23 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
             f"{int(lines[last])}: {_shown_line(text_lines[first - 1])!r}, ...) are comment "
             "lines ending the file, a footer: dropped")
         return raw.iloc[:footer[0]].reset_index(drop=True), lines[:footer[0]]
+    words = footers.word_footer(text_lines, lines, short, last) if inner else []
+    if inner and words and inner[0] >= words[0]:
+        # lines about the file after a blank line ("Records written,17520", "End of
+        # data"): a footer of words (layouts38: "a record cut short" before)
+        first = int(lines[words[0]])
+        shown = "', '".join(_shown_line(text_lines[int(lines[row]) - 1]) for row in words[:3])
+        more = ", ..." if len(words) > 3 else ""
+        if warnings is None:
+            raise InputFileError(
+                f"input file {str(path)!r}: lines {first} to {int(lines[last])} ('{shown}'"
+                f"{more}) open with words after a blank line, a footer; delete them in a "
+                "copy of the file")
+        warnings.append(
+            f"input file {str(path)!r}: its last {len(words)} lines ({first} to "
+            f"{int(lines[last])}: '{shown}'{more}) open with words after a blank line, "
+            "a footer about the file: dropped")
+        return raw.iloc[:words[0]].reset_index(drop=True), lines[:words[0]]
     if inner:
         row = inner[0]
         changed = _changed_layout(path, text_lines, int(lines[row]), width, delimiter,
@@ -3641,6 +3674,12 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                                  "line put above this headerless file as line 1)") from None
         raise
     lines = lines - borrowed
+    respelled = unicode_names.settings_spelling(list(raw.columns), [
+        *columns.values(), *time_columns, *flag_columns,
+        *(name for names in (other_names or {}).values() for name in names)])
+    if respelled:
+        raw = raw.rename(columns=respelled)
+        header = [respelled.get(name, name) for name in header]
     if other_names:
         raw, header = _own_names(path, raw, header, columns, other_names, renamed_in)
     try:
@@ -3679,9 +3718,34 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
             judged_format, time_zone, utc_offset, source)
         if zone_said:
             raise TimestampError(zone_said)
+    summary = footers.summary_rows(stamp_text, time_columns)
+    if summary:
+        # a spreadsheet's statistics under the records ("mean", "max"): no stamp, no
+        # record (layouts38; refused before, naming them)
+        kept = len(raw) - summary
+        shown = ", ".join(repr(word) for word in dict.fromkeys(stamp_text.iloc[kept:]
+                                                               .str.strip()))
+        warnings.append(f"input file {source!r}: its last {summary} line(s) ({int(lines[kept])}"
+                        f" to {int(lines[-1])}: {shown}) have a word for a stamp, no record (a "
+                        "footer, or a spreadsheet's statistics under the records): dropped")
+        raw = raw.iloc[:kept].reset_index(drop=True)
+        stamp_text = stamp_text.iloc[:kept].reset_index(drop=True)
+        lines = lines[:kept]
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)
+    newest_first = written_newest_first(parsed.stamps)
+    if newest_first:
+        # a portal's export sorted newest first (layouts38; refused before with "sort a
+        # copy of the file oldest first"): read in the logger's order, parsed again so
+        # that civil time's repeated autumn hour is resolved by that order
+        order = np.arange(len(raw))[::-1]
+        raw = raw.iloc[order].reset_index(drop=True)
+        stamp_text = stamp_text.iloc[order].reset_index(drop=True)
+        lines = lines[order]
+        parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns,
+                              source=source, lines=lines, utc_offset=utc_offset,
+                              time_zone=time_zone, rows_after_header=rows_after_header)
     if time_marks is not None and len(time_columns) == 1:
         _refuse_paired_stamps(raw, stamp_text, time_columns[0], time_format, mapping,
                               flag_columns, time_marks, source)
@@ -3748,7 +3812,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         "stamps": stamps, "lines": lines[keep],
         "values": {name: column[keep] for name, column in values.items()},
         "records_read": len(raw), "duplicate_rows": int(duplicate.sum()),
-        "header_trailing_delimiter": bool(unnamed_surplus),
+        "newest_first": newest_first, "header_trailing_delimiter": bool(unnamed_surplus),
         "missing_cells": missing_cells, "nonfinite_cells": nonfinite,
         "conversions": {"hour_24": parsed.hour_24, "utc_offset": parsed.offset_converted,
                         "daylight_saving": parsed.daylight_saving,
@@ -3756,7 +3820,9 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                         # only where it happened: earlier manifests have no such key
                         **({"rounded_to_minute": parsed.rounded_to_minute}
                            if parsed.rounded_to_minute else {}),
-                        **({"date_only": parsed.date_only} if parsed.date_only else {})},
+                        **({"date_only": parsed.date_only} if parsed.date_only else {}),
+                        **({"whole_numbers": parsed.whole_numbers}
+                           if parsed.whole_numbers else {})},
     }
 
 
@@ -5155,6 +5221,9 @@ def _conversion_text(conversions: dict) -> str:
     if conversions.get("date_only"):
         parts.append(f"{conversions['date_only']} stamp(s) written as the date alone read "
                      "as midnight")
+    if conversions.get("whole_numbers"):
+        parts.append(f"{conversions['whole_numbers']} stamp(s) with whole numbers written "
+                     "with a decimal point (2021.0) read without it")
     if conversions.get("utc_zone"):
         parts.append(f"{conversions['utc_zone']} stamp(s) in {conversions.get('time_zone')} "
                      "moved to local standard time")

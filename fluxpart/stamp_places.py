@@ -34,6 +34,7 @@ import numpy as np
 import pandas as pd
 
 from .config import setting_text
+from .counted_time import counted_form
 
 __all__ = ["ZONE_ABBREVIATIONS", "column_place", "column_utc_offset", "half_interval_message",
            "date_only_repeats_hint", "name_conflict_message", "paired_stamps_message",
@@ -1113,9 +1114,11 @@ def format_clock(time_format: str) -> tuple[str, float] | None:
 
 
 def _labelled(time_format: str) -> bool:
-    """True where the format reads each stamp's own UTC offset or zone label."""
+    """True where the format reads each stamp's own UTC offset or zone label, or counts
+    time from a reference in a stated clock ("seconds since 1970-01-01 UTC")."""
+    counted = counted_form(time_format)
     return (time_format == "ISO8601" or "%z" in time_format or "%Z" in time_format
-            or ends_in_utc_z(time_format))
+            or ends_in_utc_z(time_format) or (counted is not None and counted[2] is not None))
 
 
 def ends_in_utc_z(time_format: str) -> bool:

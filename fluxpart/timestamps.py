@@ -22,6 +22,7 @@ import numpy as np
 import pandas as pd
 
 from .config import setting_text
+from .counted_time import counted_form, counted_stamps
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -45,6 +46,7 @@ __all__ = [
     "budget_years",
     "check_isolated_stretch",
     "check_order",
+    "written_newest_first",
     "check_time_zone",
     "clock_alignment_warning",
     "interval_change_warning",
@@ -96,7 +98,7 @@ _ZERO_DATE = re.compile(r"\s*0{2,4}[-./]00?[-./]0{2,4}(?!\d)")
 #: Words for no value written in a time column: SQL's NULL and its dump form \N (MySQL
 #: and PostgreSQL text exports (m)), NaN/NaT/NA/None of numerical and statistics
 #: programs, #N/A of spreadsheets (common practice).
-_NULL_STAMP = re.compile(r"(?i)\s*(?:null|\\n|none|nan|nat|na|n/a|#n/a|<na>)\s*")
+NULL_STAMP = re.compile(r"(?i)\s*(?:null|\\n|none|nan|nat|na|n/a|#n/a|<na>)\s*")
 _HOUR_24 = (
     (re.compile(r"(?<!\d)24:00(:00)?(?!\d)"), lambda m: "00:00" + (m[1] or "")),
     (re.compile(r"(?<!\d)24(00)$"), lambda m: "00" + m[1]),
@@ -159,6 +161,9 @@ class ParsedStamps:
     date_only : int
         Stamps written as the date alone among stamps with a time of day, read as
         midnight (how R's ``as.character`` and some spreadsheet exports write 00:00).
+    whole_numbers : int
+        Stamps whose numeric fields were written as whole numbers with a decimal point
+        ("2021.0 1.0 30.0" for year, day of year and hhmm) and read without it.
     """
 
     stamps: pd.DatetimeIndex
@@ -168,6 +173,7 @@ class ParsedStamps:
     utc_zone: int = 0
     rounded_to_minute: int = 0
     date_only: int = 0
+    whole_numbers: int = 0
 
 
 def join_time_columns(raw: pd.DataFrame, time_columns: tuple) -> pd.Series:
@@ -176,6 +182,41 @@ def join_time_columns(raw: pd.DataFrame, time_columns: tuple) -> pd.Series:
     for column in time_columns[1:]:
         text = text + " " + raw[column].astype(str).str.strip()
     return text
+
+
+def _whole_number_fields(text: pd.Series, time_format: str) -> tuple[pd.Series, int]:
+    """Stamp fields written as whole numbers with a decimal point, read without it.
+
+    A program that keeps a column holding an empty cell as floating point writes its
+    whole numbers as "2021.0", "1.0", "30.0" (year, day of year, hhmm). A field (a
+    blank-separated position of the stamp text) is rewritten only where every stamp has
+    it and every one of its cells is digits, a point and zeros, and only under a
+    time_format without a point of its own ("%H.%M" reads 13.00 as 13:00).
+
+    Returns
+    -------
+    text : pandas.Series of str
+        The stamps with such fields' points and zeros removed.
+    count : int
+        Stamps rewritten (0 where none).
+
+    References
+    ----------
+    pandas writes an integer column holding a missing value as float64, each whole
+    number with ".0" (pandas documentation, "Nullable integer data type" (m)).
+    """
+    if "." in time_format or not text.str.contains(".", regex=False).any():
+        return text, 0
+    parts = text.str.split(expand=True)
+    if parts.empty or parts.isna().any().any():
+        return text, 0
+    floats = [c for c in parts.columns if parts[c].str.fullmatch(r"\d+\.0+").all()]
+    if not floats:
+        return text, 0
+    for column in floats:
+        parts[column] = parts[column].str.replace(r"\.0+$", "", regex=True)
+    joined = parts[parts.columns[0]].str.cat([parts[c] for c in parts.columns[1:]], sep=" ")
+    return joined, len(text)
 
 
 def _where(source: str, lines: np.ndarray, position: int) -> str:
@@ -544,28 +585,20 @@ _NUMERIC_CLOCKS_1904 = {
 }
 
 
-def _summary_lines(text: pd.Series, failed: np.ndarray) -> str:
-    """The cause where every stamp that fails stands after the last one that parses and
-    holds a word without digits ("mean", "Total", "SUM"): a spreadsheet's summary lines
-    under the records, whose values are statistics of the column, not a record. Else ''.
+#: The [input] time_format that reads each numeric clock (:mod:`fluxpart.counted_time`);
+#: MATLAB day numbers and Julian dates count from before any date it writes.
+_COUNTED_FORMS = {
+    "seconds since 1970-01-01 UTC (Unix time)": "seconds since 1970-01-01 UTC",
+    "milliseconds since 1970-01-01 UTC (Unix time)": "milliseconds since 1970-01-01 UTC",
+    "spreadsheet day numbers (days since 1899-12-30, as Excel and LibreOffice count)":
+        "days since 1899-12-30",
+    "seconds since 1904-01-01 (LabVIEW, classic Mac OS)": "seconds since 1904-01-01",
+    "days since 1904-01-01 (Excel's 1904 date system)": "days since 1904-01-01",
+}
 
-    References
-    ----------
-    Spreadsheets write a column's statistics in a row under its values (AVERAGE, SUM;
-    common practice).
-    """
-    if failed.all() or not failed.any():
-        return ""
-    where = np.flatnonzero(failed)
-    if where[0] < np.flatnonzero(~failed)[-1]:
-        return ""
-    words = text.iloc[where].str.strip()
-    if not words.str.fullmatch(r"[^\W\d_][^\d]*").all():
-        return ""
-    shown = ", ".join(repr(word) for word in dict.fromkeys(words))
-    return (f"{len(where)} line(s) after the last record ({shown}) are a summary (a "
-            "spreadsheet's statistics under the records), not records: delete them in a "
-            "copy of the file")
+
+def _other_form(other_name: str) -> str:
+    return f" ({setting_text(_COUNTED_FORMS[other_name])} for the other reading)"
 
 
 def _numeric_clock(text: pd.Series) -> str:
@@ -589,7 +622,7 @@ def _numeric_clock(text: pd.Series) -> str:
         first = pd.Timestamp(epoch) + pd.Timedelta(seconds=(float(numbers[0]) - shift)
                                                    * seconds)
         zone = " UTC" if "UTC" in name else ""
-        other = ""
+        other = other_name = ""
         if name in _NUMERIC_CLOCKS_1904:
             # layouts28: LabVIEW seconds were named as Unix time of 2087, one reading only
             other_name, unit = _NUMERIC_CLOCKS_1904[name]
@@ -597,9 +630,13 @@ def _numeric_clock(text: pd.Series) -> str:
             if 1971 <= then.year <= 2100:      # the plausible stamps of _NUMERIC_CLOCKS
                 other = (f", or {other_name} (in which it is "
                          f"{then.round('min'):%Y-%m-%d %H:%M})")
+        form = _COUNTED_FORMS.get(name)
+        read = (f": set [input] time_format = {setting_text(form)} to read them"
+                f"{_other_form(other_name) if other else ''}, or write the column"
+                if form else ", which fluxpart does not read: write the column")
         return (f"the stamps are {name}, not dates ({text.iloc[0].strip()!r} is "
-                f"{first.round('min'):%Y-%m-%d %H:%M}{zone}){other}, which fluxpart does not "
-                "read: write the column as dates and times in a copy of the file (e.g. 2021-06-01 "
+                f"{first.round('min'):%Y-%m-%d %H:%M}{zone}){other}{read} as dates and times "
+                "in a copy of the file (e.g. 2021-06-01 "
                 "13:30; in a spreadsheet, format the column as yyyy-mm-dd hh:mm before saving "
                 "as CSV) and set [input] time_format to match"
                 + (", with [input] time_zone = \"UTC\" if you keep UTC" if zone else ""))
@@ -1262,6 +1299,20 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     the repeated hour is read as daylight-saving time. The skipped spring hour
     holds no stamps, so it becomes a gap of inserted records.
     """
+    if counted_form(time_format) is not None:
+        # counts of time since a reference ("days since 1899-12-30"): written as stamps
+        # and read as such from here on (layouts38; refused before, naming the readings)
+        written_format = time_format
+        text, time_format, no_count = counted_stamps(text, time_format)
+        if no_count.any():
+            first = int(np.flatnonzero(no_count)[0])
+            raise TimestampError(
+                f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
+                f"{text.iloc[first]!r}, which is no number of "
+                f"time_format = {setting_text(written_format)}; {int(no_count.sum())} such "
+                "stamp(s): give every record its count, or delete such lines in a copy of "
+                "the file")
+    text, whole_numbers = _whole_number_fields(text, time_format)
     if "%p" in time_format and "%H" in time_format and "%I" not in time_format:
         # strptime applies AM/PM to %I only: under %H "01:00 PM" is read as 01:00
         raise TimestampError(
@@ -1370,12 +1421,10 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     # again) put one under every line (layouts36)
                     f"{'' if skip == 1 else '(units, processing or blank lines) '}under the "
                     f"header, set [input] rows_after_header = {skip}")
-        elif _NULL_STAMP.fullmatch(text.iloc[first]) and not failed.all():
+        elif NULL_STAMP.fullmatch(text.iloc[first]) and not failed.all():
             # a database's or a statistics program's word for no value in the time column
             hint = ("; a record without a date and time (an empty stamp or a missing "
                     "code): give it its stamp or delete that line in a copy of the file")
-        elif (found := _summary_lines(text, failed)):
-            hint = "; " + found
         elif _NO_DATE.fullmatch(text.iloc[first]) and not failed.all():
             # a record whose stamp is empty or a bare number ("-9999"): a row written
             # while the logger had no clock, or a missing code in the time column
@@ -1488,7 +1537,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     return ParsedStamps(stamps=pd.DatetimeIndex(index), hour_24=int(is_24.sum()),
                         offset_converted=offset_converted, daylight_saving=daylight,
                         utc_zone=from_utc,
-                        rounded_to_minute=rounded, date_only=int(date_only.sum()))
+                        rounded_to_minute=rounded, date_only=int(date_only.sum()),
+                        whole_numbers=whole_numbers)
 
 
 #: Years of the Buddhist Era as the Thai solar calendar counts them: the Gregorian year
@@ -1700,12 +1750,7 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         row = int(backwards[0]) + 1
         back_days = -float(steps[row - 1]) / 86400.0
         swapped = _runs_in_reverse_order(stamps, backwards)
-        if steps.size >= 2 and backwards.size >= 0.99 * steps.size:
-            # a whole file written newest first (an export sorted descending; layouts34:
-            # named as one step back, as if one record were out of place)
-            hint = (f"{backwards.size} of its {steps.size} steps go backwards: the file is "
-                    "written newest first; sort a copy of the file oldest first")
-        elif swapped:
+        if swapped:
             hint = swapped
         elif _day_month_mixed(stamps):
             hint = ("read with the day and the month exchanged, the stamps whose day is 12 "
@@ -1739,6 +1784,22 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
         raise NonMonotonicTimestampError(
             f"stamps go backwards at {_where(source, lines, row)}: {text.iloc[row]!r} comes "
             f"after {text.iloc[row - 1]!r}; {hint}")
+
+
+def written_newest_first(stamps: pd.DatetimeIndex) -> bool:
+    """True where a file's stamps go backwards at 99 % of their steps or more (three
+    stamps at least): an export sorted newest first, whose records read in reverse
+    order are the logger's (a record or two out of place among them aside).
+
+    References
+    ----------
+    Data portals and databases sort an export by time in either direction (SQL's ORDER
+    BY ... DESC; common practice).
+    """
+    if len(stamps) < 3:
+        return False
+    steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(seconds=1))
+    return bool((steps < 0).sum() >= 0.99 * steps.size)
 
 
 def _runs_in_reverse_order(stamps: pd.DatetimeIndex, backwards: np.ndarray) -> str:

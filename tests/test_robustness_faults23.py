@@ -245,6 +245,9 @@ def test_the_files_own_stamp_is_named_in_its_clock():
     offsets = SimpleNamespace(**{**vars(plain), "time_marks": "end",
                                  "time_format": "%Y-%m-%dT%H:%M%z"})
     assert _file_stamp(start, offsets, half_hour) == ""
+    # a count of time since a date (layouts38): the file writes a number, no stamp
+    counted = SimpleNamespace(**{**vars(offsets), "time_format": "days since 1899-12-30"})
+    assert _file_stamp(start, counted, half_hour) == ""
 
 
 def test_verify_names_records_added_and_removed_from_an_input(bundle, tmp_path):

@@ -234,20 +234,22 @@ def test_a_delimiter_closing_every_line_from_mid_file_on_is_read_as_no_column(tm
 
 
 # ------------------------------------------------------------ a file written newest first
-def test_a_file_written_newest_first_is_named_so(tmp_path):
-    """Before: a file whose every step goes back in time (an export sorted descending)
-    was named by its first step back alone, as one record out of place; now the count of
-    backward steps and "newest first" are named. Stamps of an interval's end increase
-    with time (common practice: any time series)."""
+def test_a_file_written_newest_first_is_read_oldest_first(tmp_path):
+    """Before layouts34: a file whose every step goes back in time (an export sorted
+    descending) was named by its first step back alone; layouts34 named it "newest first"
+    and refused it; since layouts38 it is read oldest first, the frame the plain file's,
+    with a warning. Stamps of an interval's end increase with time (common practice: any
+    time series)."""
     names = ["co2_flux", "us", "sw", "t_air", "vpd"]
     path = _write(tmp_path / "plain.csv", names)
+    mapping = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
+    expected, _ = _read(path, mapping)
     lines = path.read_text(encoding="utf-8").splitlines()
     path.write_text("\n".join(lines[:1] + lines[:0:-1]) + "\n", encoding="utf-8")
-    mapping = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
-    with pytest.raises(NonMonotonicTimestampError,
-                       match=r"959 of its 959 steps go backwards: the file is written "
-                             r"newest first; sort a copy of the file oldest first"):
-        _read(path, mapping)
+    table, report = _read(path, mapping)
+    pd.testing.assert_frame_equal(table, expected)
+    assert any("is written newest first (the stamps go back in time from line to line): "
+               "read oldest first" in w for w in report.warnings)
     # one record out of place is not named so
     lines = _write(tmp_path / "plain.csv", names).read_text(encoding="utf-8").splitlines()
     lines[10], lines[11] = lines[11], lines[10]

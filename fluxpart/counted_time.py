@@ -1,0 +1,127 @@
+"""Stamps written as a count of time since a reference date: spreadsheet day numbers, Unix time.
+
+``[input] time_format = "days since 1899-12-30"`` reads a spreadsheet's day numbers
+(44197.020833 is 2021-01-01 00:30), ``"seconds since 1970-01-01 00:00 UTC"`` Unix time
+(1609457400 is 2020-12-31 23:30 UTC). The form is the one the CF conventions give the
+units of a time coordinate: a unit (days, hours, minutes, seconds, milliseconds),
+``since``, a reference date with an optional time and an optional clock (``UTC``, ``Z``
+or an offset ``+01:00``). A reference without a clock counts in the clock the file's
+other stamps would be in (local standard time, or ``[input] time_zone``'s civil time);
+one with a clock is converted to local standard time by ``[site] utc_offset``, as stamps
+carrying an offset are.
+
+The counts alone cannot tell their unit or reference (the reader refuses such a column
+without this setting, naming the readings), so the setting is the user's word on them.
+"""
+from __future__ import annotations
+
+import re
+
+import numpy as np
+import pandas as pd
+
+from .errors import TimestampError
+
+#: seconds of each unit the form names (CF conventions, section 4.4, after UDUNITS (m))
+_UNIT_SECONDS = {"day": 86400.0, "hour": 3600.0, "minute": 60.0, "second": 1.0,
+                 "millisecond": 1e-3}
+
+_FORM = re.compile(
+    r"\s*(?P<unit>days?|hours?|minutes?|seconds?|milliseconds?)\s+since\s+"
+    r"(?P<date>\d{4}-\d{1,2}-\d{1,2})"
+    r"(?:[ T](?P<time>\d{1,2}:\d{2}(?::\d{2}(?:\.\d+)?)?))?"
+    r"\s*(?P<clock>UTC|GMT|Z|[+-]\d{1,2}(?::?\d{2})?)?\s*", re.IGNORECASE)
+
+
+def counted_form(time_format: str):
+    """The unit [s], reference stamp and clock of a "<unit> since <date>" format, or None.
+
+    Parameters
+    ----------
+    time_format : str
+        ``[input] time_format``.
+
+    Returns
+    -------
+    tuple of (float, pandas.Timestamp, str or None) or None
+        Seconds per counted unit, the reference stamp (naive), and the clock written
+        after it as a ``+hh:mm`` offset (``"+00:00"`` for UTC, GMT and Z) or None; None
+        where `time_format` is no such form (a strptime format, ``"ISO8601"``).
+
+    Raises
+    ------
+    TimestampError
+        The reference date or time names no instant (2021-02-30, 25:00).
+
+    References
+    ----------
+    Eaton, B. et al. NetCDF Climate and Forecast (CF) Metadata Conventions, section 4.4
+    "Time Coordinate": units of the form "<unit> since <reference date and time>" (m).
+    """
+    if not isinstance(time_format, str):
+        return None
+    match = _FORM.fullmatch(time_format)
+    if match is None:
+        return None
+    unit = match["unit"].lower().rstrip("s")
+    written = match["date"] + (" " + match["time"] if match["time"] else "")
+    try:
+        reference = pd.Timestamp(written)
+    except ValueError:
+        raise TimestampError(
+            f"[input] time_format = {time_format!r} cannot be used: {written!r} is no date "
+            "and time (write the reference as YYYY-MM-DD, optionally with hh:mm)") from None
+    clock = match["clock"]
+    if clock is not None:
+        if clock.upper() in ("UTC", "GMT", "Z"):
+            clock = "+00:00"
+        else:
+            sign, digits = clock[0], clock[1:].replace(":", "")
+            hours, minutes = (digits[:-2], digits[-2:]) if len(digits) > 2 else (digits, "00")
+            clock = f"{sign}{int(hours):02d}:{minutes}"
+    return _UNIT_SECONDS[unit], reference, clock
+
+
+def counted_stamps(text: pd.Series, time_format: str) -> tuple[pd.Series, str, np.ndarray]:
+    """Write counts of time as stamp text, with the strptime format that reads it back.
+
+    Parameters
+    ----------
+    text : pandas.Series of str
+        The stamp text per record: numbers counting `time_format`'s unit.
+    time_format : str
+        A "<unit> since <reference>" format (:func:`counted_form`).
+
+    Returns
+    -------
+    stamps : pandas.Series of str
+        ``YYYY-MM-DD hh:mm:ss`` (with ``+hh:mm`` where the reference carries a clock),
+        rounded to the second (six decimals of a day resolve 0.09 s); a decimal comma
+        is read ("44197,020833") where it cannot group thousands; a cell that is no
+        finite number is kept as written, so the reader names it as a stamp that does
+        not parse.
+    strptime_format : str
+        ``"%Y-%m-%d %H:%M:%S"``, or with ``%z`` after it.
+    no_count : numpy.ndarray of bool
+        The cells that are no finite number (or one beyond some 3000 years).
+
+    References
+    ----------
+    Eaton, B. et al. NetCDF Climate and Forecast (CF) Metadata Conventions, section 4.4
+    (m). Spreadsheets count days from 1899-12-30 (Microsoft, "Date systems in Excel":
+    day 1 is 1900-01-01 and the count keeps a 29 February 1900 that never was, so from
+    March 1900 on day n is 1899-12-30 + n days) or, in Excel's 1904 date system, from
+    1904-01-01 (m); Unix time counts seconds since 1970-01-01 00:00 UTC (POSIX.1) (m).
+    """
+    seconds, reference, clock = counted_form(time_format)
+    # a decimal comma (a spreadsheet of a comma locale): one comma before other than
+    # three digits, so that "44,197" (thousands grouped, or 44.197?) stays no number
+    plain = text.str.strip().str.replace(r"^(-?\d+),(\d{1,2}|\d{4,})$", r"\1.\2", regex=True)
+    numbers = pd.to_numeric(plain, errors="coerce").to_numpy(dtype=float)
+    good = np.isfinite(numbers) & (np.abs(numbers * seconds) < 1e11)  # within ~3000 years
+    whole = np.zeros(len(numbers), dtype="int64")
+    whole[good] = np.round(numbers[good] * seconds).astype("int64")
+    stamps = pd.Series(reference + pd.to_timedelta(whole, unit="s"), index=text.index)
+    written = stamps.dt.strftime("%Y-%m-%d %H:%M:%S") + (clock or "")
+    out = text.where(~good, written)
+    return out, "%Y-%m-%d %H:%M:%S" + ("%z" if clock else ""), ~good

@@ -1,0 +1,79 @@
+"""Lines under a file's records that summarise them: a footer of words, statistics rows.
+
+A logger program or a data portal may close a file with a few lines about it after a
+blank line ("Records written,17520", "End of data"), and a table saved from a
+spreadsheet may keep the statistics of each column under the records ("mean,...",
+"max,..."). Neither is a record: no line of either holds a date or a time. They are
+dropped with a warning quoting them (layouts38; refused before, naming them).
+"""
+from __future__ import annotations
+
+import re
+
+import numpy as np
+import pandas as pd
+
+from .timestamps import NULL_STAMP
+
+#: a cell that opens with a letter: a word, no date, time, number or code
+_OPENS_WITH_WORD = re.compile(r"\s*\"?[^\W\d_]")
+#: a stamp cell holding a word and no digit ("mean", "Total", "Std. dev."): no stamp
+_WORD_STAMP = re.compile(r"[^\W\d_][^\d]*")
+
+
+def word_footer(text_lines: list, lines: np.ndarray, short: list, last: int) -> list:
+    """Rows (0-based, ascending) of the block that ends the file after a blank line, each
+    a line shorter than the header that opens with a word; [] where there is none or it
+    is a single line (the last line alone is judged as a record cut short or a footer).
+
+    Parameters
+    ----------
+    text_lines : list of str
+        The file's lines.
+    lines : numpy.ndarray of int
+        Line number (1-based) of each data row.
+    short : list of int
+        Rows with fewer fields than the header.
+    last : int
+        The last data row.
+
+    References
+    ----------
+    A blank line separates a table from text after it (RFC 4180 has no footer; a
+    file's own notes follow its records: common practice).
+    """
+    shorts, block = set(short), []
+    row = last
+    while row in shorts and _OPENS_WITH_WORD.match(text_lines[lines[row] - 1]):
+        block.append(row)
+        row -= 1
+    if len(block) < 2:
+        return []
+    above = int(lines[block[-1]]) - 2            # the line above the block, 0-based
+    if above < 0 or text_lines[above].strip():
+        return []
+    return block[::-1]
+
+
+def summary_rows(stamp_text: pd.Series, time_columns) -> int:
+    """How many rows end the file with a word for their stamp (a spreadsheet's statistics
+    under the records), 0 where none or where every row has one.
+
+    A row whose stamp is the time column's own name (the header written again) or a
+    word for no value ("NULL", "NaT": a record without a date) is no summary; the stamp
+    parser names those.
+
+    References
+    ----------
+    Spreadsheets write a column's statistics in a row under its values (AVERAGE, SUM;
+    common practice).
+    """
+    if not len(stamp_text) or not _WORD_STAMP.fullmatch(str(stamp_text.iloc[-1]).strip()):
+        return 0                 # the usual file: its last stamp is a stamp (one match)
+    text = stamp_text.astype(str).str.strip()
+    header = " ".join(time_columns)
+    words = (text.str.fullmatch(_WORD_STAMP.pattern).to_numpy() & (text != header).to_numpy()
+             & ~text.str.fullmatch(NULL_STAMP.pattern).to_numpy())
+    if words.all() or not words[-1:].any():
+        return 0
+    return int(len(words) - 1 - np.flatnonzero(~words)[-1])

@@ -1,0 +1,216 @@
+"""Layouts of the layouts38 round: stamps counted since a reference date (spreadsheet day
+numbers, Unix time) under time_format = "<unit> since <date>", and stamp fields written as
+whole numbers with a decimal point ("2021.0 1.0 30.0").
+
+Outside facts, each named beside its check: the "<unit> since <reference>" form of a time
+coordinate's units (CF conventions, section 4.4 (m)); spreadsheets count days from
+1899-12-30 in the 1900 date system and from 1904-01-01 in Excel's 1904 date system
+(Microsoft, "Date systems in Excel" (m)); Unix time counts seconds since 1970-01-01 00:00
+UTC (POSIX.1 (m)); the expected stamps are computed with Python's datetime, a general-purpose
+reference. pandas writes an integer column holding a missing value as float64 ("30.0")
+(pandas documentation (m)). Everything else is invented known truth: the records as written.
+"""
+from datetime import datetime, timedelta
+
+import pandas as pd
+import pytest
+from test_robustness_layouts35 import _records  # invented records of 1-10 June 2021
+from test_robustness_layouts36 import MAPPING, SITE
+from test_robustness_layouts37 import _assert_all
+
+from fluxpart.counted_time import counted_form, counted_stamps
+from fluxpart.errors import TimestampError
+from fluxpart.io import read_table
+
+
+def _read(path, **options):
+    settings = {"time_column": "stamp", "time_format": "%Y%m%d%H%M", "time_marks": "end"}
+    settings.update(options)
+    return read_table(path, columns=MAPPING, units={"vpd": "kPa"}, site=SITE, **settings)
+
+
+def _write(tmp_path, stamps, frame, **columns):
+    frame = frame.copy()
+    frame["stamp"] = stamps
+    for name, values in columns.items():
+        frame.insert(0, name, values)
+    path = tmp_path / "t.csv"
+    frame.to_csv(path, index=False)
+    return path
+
+
+@pytest.mark.parametrize("time_format, count", [
+    # spreadsheet day numbers of the 1900 system, six decimals (0.09 s)
+    ("days since 1899-12-30",
+     lambda end: f"{(end - datetime(1899, 12, 30)) / timedelta(days=1):.6f}"),
+    # Excel's 1904 date system, five decimals (0.9 s: rounded to the minute)
+    ("days since 1904-01-01",
+     lambda end: f"{(end - datetime(1904, 1, 1)) / timedelta(days=1):.5f}"),
+    # Unix time: the stamps in UTC, the site at UTC+1
+    ("seconds since 1970-01-01 00:00:00 UTC",
+     lambda end: str(int((end - timedelta(hours=1) - datetime(1970, 1, 1)).total_seconds()))),
+    ("milliseconds since 1970-01-01T00:00Z",
+     lambda end: str(int((end - timedelta(hours=1) - datetime(1970, 1, 1))
+                         / timedelta(milliseconds=1)))),
+    ("hours since 2021-06-01 00:00",
+     lambda end: f"{(end - datetime(2021, 6, 1)) / timedelta(hours=1):g}"),
+])
+def test_counted_stamps_are_read_under_their_form(tmp_path, time_format, count):
+    """Refused before layouts38 ("which fluxpart does not read", or the format's 'UTC'
+    taken for a clock against the site's)."""
+    frame, ends = _records()
+    path = _write(tmp_path, [count(end.to_pydatetime()) for end in ends], frame)
+    read, _ = _read(path, time_format=time_format)
+    _assert_all(read, frame, ends)
+
+
+def test_counted_forms_and_their_refusals(tmp_path):
+    assert counted_form("%Y-%m-%d %H:%M") is None and counted_form("ISO8601") is None
+    assert counted_form("Days since 1899-12-30") == (86400.0, pd.Timestamp("1899-12-30"), None)
+    assert counted_form("seconds since 1970-01-01 00:00 +0530")[2] == "+05:30"
+    with pytest.raises(TimestampError, match="'2021-02-30' is no date"):
+        counted_form("days since 2021-02-30")
+    frame, ends = _records()
+    serial = [f"{(e.to_pydatetime() - datetime(1899, 12, 30)) / timedelta(days=1):.6f}"
+              for e in ends]
+    serial[40] = "#VALUE!"
+    path = _write(tmp_path, serial, frame)
+    with pytest.raises(TimestampError, match=r"line 42 .* has stamp '#VALUE!', which is no "
+                                             r"number of time_format = \"days since"):
+        _read(path, time_format="days since 1899-12-30")
+    # without the form the column is refused, now naming the setting that reads it
+    serial[40] = serial[41]
+    path = _write(tmp_path, serial[:40] + serial[41:] + [serial[-1]], frame)
+    with pytest.raises(TimestampError, match=r'set \[input\] time_format = "days since '
+                                             r'1899-12-30" to read them'):
+        _read(path, time_format="%Y-%m-%d %H:%M")
+
+
+def test_stamp_fields_of_whole_numbers_with_a_point_are_read(tmp_path):
+    """Refused before layouts38 ("'2021.0 152.0 30.0' does not match")."""
+    frame, ends = _records()
+    path = _write(tmp_path, "", frame.drop(columns="stamp"),
+                  hhmm=[f"{int(e.strftime('%H%M'))}.0" for e in ends],
+                  doy=[f"{int(e.strftime('%j'))}.0" for e in ends],
+                  yr=[f"{e.year}.0" for e in ends])
+    read, report = _read(path, time_column=["yr", "doy", "hhmm"], time_format="%Y %j %H%M")
+    _assert_all(read, frame, ends)
+    assert report.stamp_conversions["whole_numbers"] == len(ends)
+    # a format with a point of its own reads the point: hourly "%H.%M" stamps stay as
+    # written (13.00 is 13:00, not 1300)
+    hourly = [f"{e:%Y-%m-%d} {e.hour}.00" for e in ends[1::2]]
+    path = _write(tmp_path, hourly, frame.iloc[1::2])
+    read, report = _read(path, time_format="%Y-%m-%d %H.%M")
+    assert read.index.equals(pd.DatetimeIndex(ends[1::2] - pd.Timedelta("1h"), name="time")
+                             .as_unit(read.index.unit))
+    assert "whole_numbers" not in report.stamp_conversions
+
+
+def test_a_file_newest_first_in_civil_time_is_read_in_the_loggers_order(tmp_path):
+    """Refused before layouts38 ("sort a copy of the file oldest first"). Civil time of
+    Europe/Berlin repeats 02:00-03:00 on 31 October 2021 (IANA time zone database (m)):
+    read in reverse, the file's records are the logger's order again, whose first 02:30
+    is summer time. Month files newest first are named in one warning."""
+    ends = pd.date_range("2021-10-28 00:30", periods=48 * 6, freq="30min")
+    frame, _ = _records(len(ends))
+    civil = ends.tz_localize("Etc/GMT-1").tz_convert("Europe/Berlin")
+    path = _write(tmp_path, list(civil.strftime("%Y-%m-%d %H:%M")), frame)
+    expected, _ = _read(path, time_format="%Y-%m-%d %H:%M", time_zone="Europe/Berlin")
+    _assert_all(expected, frame, ends)
+    lines = path.read_text().splitlines()
+    path.write_text("\n".join(lines[:1] + lines[:0:-1]) + "\n")
+    read, report = _read(path, time_format="%Y-%m-%d %H:%M", time_zone="Europe/Berlin")
+    _assert_all(read, frame, ends)
+    assert any("is written newest first" in w for w in report.warnings)
+    parts = [tmp_path / "a.csv", tmp_path / "b.csv"]
+    for part, rows in zip(parts, (lines[1:100], lines[100:]), strict=True):
+        part.write_text("\n".join(lines[:1] + rows[::-1]) + "\n")
+    read, report = _read([str(p) for p in parts], time_format="%Y-%m-%d %H:%M",
+                         time_zone="Europe/Berlin")
+    _assert_all(read, frame, ends)
+    assert any("2 of 2 input files ('" in w and "are written newest first" in w
+               for w in report.warnings)
+
+
+def test_names_in_decomposed_unicode_are_the_settings_columns(tmp_path):
+    """Refused before layouts38 as look-alike characters. Unicode Standard Annex #15:
+    "ä" as U+00E4 (NFC) and as "a" + U+0308 (NFD) are canonically equivalent (m); the
+    decomposed names are computed with Python's unicodedata. A name that differs in
+    another way (a no-break space, no canonical equivalent of a space) stays refused."""
+    import unicodedata
+
+    from fluxpart.errors import MissingColumnError
+    from fluxpart.unicode_names import settings_spelling
+
+    frame, ends = _records()
+    names = {"co2": "CO2-Austausch", "sw": "Strahlung", "t_air": "Lufttemperatur",
+             "vpd": "Sättigungsdefizit", "us": "Schubspannung", "stamp": "Zeitstempel"}
+    decomposed = frame.rename(columns={k: unicodedata.normalize("NFD", v)
+                                       for k, v in names.items()})
+    path = tmp_path / "t.csv"
+    decomposed.to_csv(path, index=False)
+    assert unicodedata.normalize("NFD", "Sättigungsdefizit") != "Sättigungsdefizit"
+    mapping = {key: names[column] for key, column in MAPPING.items()}
+    read, _ = read_table(str(path), columns=mapping, units={"vpd": "kPa"}, site=SITE,
+                         time_column="Zeitstempel", time_format="%Y%m%d%H%M",
+                         time_marks="end")
+    _assert_all(read, frame, ends)
+    assert settings_spelling(["co2\u00a0net"], ["co2 net"]) == {}
+    frame.rename(columns={"co2": "co2\u00a0net"}).to_csv(path, index=False)
+    with pytest.raises(MissingColumnError, match="look-alike"):
+        read_table(str(path), columns=MAPPING | {"nee": "co2 net"}, units={"vpd": "kPa"},
+                   site=SITE, time_column="stamp", time_format="%Y%m%d%H%M",
+                   time_marks="end")
+
+
+def test_counted_stamps_with_a_decimal_comma(tmp_path):
+    """A spreadsheet of a comma locale writes day numbers "44348,020833" (Microsoft's
+    1900 date system (m)); "44,348" could group thousands and is no count."""
+    frame, ends = _records()
+    serial = [f"{(e.to_pydatetime() - datetime(1899, 12, 30)) / timedelta(days=1):.6f}"
+              .replace(".", ",") for e in ends]
+    path = tmp_path / "t.csv"
+    path.write_text(frame.assign(stamp=serial).astype(str)
+                    .apply(lambda c: c.str.replace(".", ",", regex=False))
+                    .to_csv(index=False, sep=";"))
+    read, _ = _read(path, time_format="days since 1899-12-30", delimiter=";", decimal=",")
+    _assert_all(read, frame, ends)
+    _, _, no_count = counted_stamps(pd.Series(["44,348", "44348,5"]), "days since 1899-12-30")
+    assert list(no_count) == [True, False]
+
+
+@pytest.mark.parametrize("footer, dropped", [
+    # lines about the file after a blank line: "a record cut short" before layouts38
+    (["", "Records written,480", "Logger program,half_hour_v3", "End of data"],
+     "its last 3 lines (483 to 485: 'Records written,480', 'Logger program,half_hour_v3', "
+     "'End of data') open with words after a blank line"),
+    # a spreadsheet's statistics under the records: "are a summary" and refused before
+    (["mean,1,2,3,4,5", "max,6,7,8,9,10"],
+     "its last 2 line(s) (482 to 483: 'mean', 'max') have a word for a stamp, no record"),
+])
+def test_a_footer_of_words_or_statistics_is_dropped_and_named(tmp_path, footer, dropped):
+    frame, ends = _records()
+    text = frame.to_csv(index=False) + "\n".join(footer) + "\n"
+    path = tmp_path / "t.csv"
+    path.write_text(text)
+    read, report = _read(path)
+    _assert_all(read, frame, ends)
+    assert any(dropped in w for w in report.warnings), report.warnings
+
+
+def test_words_without_a_blank_line_or_among_the_records_stay_refused(tmp_path):
+    """A short line of words right under the records is judged as before (two such lines
+    before the last: a record cut short or a footer, refused); a word stamp among the
+    records is no summary under them."""
+    from fluxpart.errors import InputFileError
+
+    frame, _ = _records()
+    path = tmp_path / "t.csv"
+    path.write_text(frame.to_csv(index=False) + "Records written,480\nEnd,of,data\nEnd\n")
+    with pytest.raises(InputFileError, match="a record cut short"):
+        _read(path)
+    table = frame.astype(object)
+    table.loc[100, "stamp"] = "mean"
+    path.write_text(table.to_csv(index=False))
+    with pytest.raises(TimestampError, match="'mean', which does not match"):
+        _read(path)
