@@ -675,6 +675,35 @@ def test_daily_figure_marks_the_declared_events_within_the_record(folder):
     assert "1999" not in drawn.caption
 
 
+def test_daily_bands_of_gpp_and_reco_stop_at_zero(folder):
+    """GPP and Reco cannot be negative, so their 95 % band (±1.96 sigma, the normal
+    coverage factor, JCGM 100:2008 annex G (m)) has no probability below zero: the
+    symmetric band drew a savanna's daytime Reco down to -5 g C m-2 d-1 (polish48). The
+    drawn band's lower edge is clipped at zero (down to an estimate below zero, which
+    stays inside its band); NEE's stays symmetric; the written 1-sigma is unchanged."""
+    values = np.array([3.0, 0.5, -0.2, np.nan])
+    sigma = np.array([1.0, 1.0, 1.0, 1.0])
+    low, high = figures.band_edges(values, sigma, "reco_daytime")
+    np.testing.assert_allclose(low, [3.0 - 1.96, 0.0, -0.2, np.nan])
+    np.testing.assert_allclose(high, values + 1.96)
+    low, _ = figures.band_edges(values, sigma, "nee")
+    np.testing.assert_allclose(low, values - 1.96)
+    written = read_written(folder["directory"])
+    daily = written.table("daily")
+    drawn, axes = _painted(figures.figure_daily, written, 30)
+    assert "those of GPP and Reco clipped at zero" in drawn.caption
+    lowest = [min(path.vertices[:, 1].min() for c in axis.collections for path in c.get_paths())
+              for axis in axes]
+    floor = {name: min(float(np.nanmin(daily[name])), 0.0) for name in
+             ("gpp_nighttime", "gpp_daytime", "reco_nighttime", "reco_daytime")}
+    assert lowest[1] >= min(floor["gpp_nighttime"], floor["gpp_daytime"]) - 1e-9
+    assert lowest[2] >= min(floor["reco_nighttime"], floor["reco_daytime"]) - 1e-9
+    nee = daily["nee"] - 1.96 * daily["nee_sigma"]
+    assert lowest[0] == pytest.approx(float(nee.min()))
+    # the demo's bands did cross zero: the rule has something to clip
+    assert ((daily["gpp_daytime"] - 1.96 * daily["gpp_daytime_sigma"]) < 0).any()
+
+
 def test_the_provenance_table_reads_as_words_not_python(folder):
     """The clock check and demo rows of the provenance table are plain words with the
     values the manifest records (read back with the standard library's json), not a
