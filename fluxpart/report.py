@@ -55,6 +55,7 @@ from .figures import (
     period_masks,
     unfitted_methods,
     window_status,
+    window_tally,
 )
 from .manifest import CAUTION, NEE_SCOPE, shown_name
 from .measured_months import month_runs_text, unchecked_months
@@ -1031,8 +1032,7 @@ def _windows_html(written: Written, metadata: dict) -> str:
     if not len(parameters):
         return ""
     states = window_status(parameters)
-    counts = states["state"].value_counts()
-    tally = ", ".join(f"{int(n)} {state}" for state, n in counts.items())
+    tally = window_tally(parameters, states, written.setting("daytime_beta0_max"))
     flagged = parameters[states["state"] != "accepted"]
     columns = [c for c in ("window_start", "window_end", "points", "alpha", "beta0", "k", "rref")
                if c in flagged.columns]

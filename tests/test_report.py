@@ -955,6 +955,34 @@ def test_window_status_reads_strings_and_flags():
     assert states.loc[3, "why"] == "no convergence, neighbour used"
 
 
+def test_window_counts_name_the_replaced_windows_left_at_the_beta0_bound(folder):
+    """A window refitted with Rref fixed at its night respiration can sit at the β0 bound
+    again (daytime_beta0_max, 250 µmol m-2 s-1, Lasslop et al. 2010 (m)); the counts put
+    those among "replaced" alone (the demo: 83 of 182 replaced, many at 250; polish48).
+    Now the page and the light-response caption name how many replaced windows sit at
+    the bound, counted from the written β0."""
+    parameters = pd.DataFrame({"status": ["accepted", "replaced: x", "replaced: y",
+                                          "rejected: z", "replaced: w"],
+                               "beta0": [30.0, 250.0, 40.0, 250.0, 250.0]})
+    states = window_status(parameters)
+    assert figures.window_tally(parameters, states, 250.0) == (
+        "1 accepted, 3 replaced (2 of them with β0 at its upper bound of 250 µmol m-2 s-1 "
+        "after the refit), 1 rejected")
+    assert figures.window_tally(parameters, states, None) == "1 accepted, 3 replaced, 1 rejected"
+    assert figures.window_tally(parameters, states, 400.0) == "1 accepted, 3 replaced, 1 rejected"
+    written = read_written(folder["directory"])
+    parameters = written.table("parameters_daytime")
+    bound = float(written.setting("daytime_beta0_max"))
+    replaced = window_status(parameters)["state"] == "replaced"
+    at_bound = int((parameters.loc[replaced, "beta0"] >= bound).sum())
+    assert at_bound > 0
+    sentence = (f"{int(replaced.sum())} replaced ({at_bound} of them with β0 at its upper "
+                f"bound of {bound:g} µmol m-2 s-1 after the refit)")
+    assert sentence in html.unescape(folder["text"])
+    drawn, _ = _painted(figures.figure_light_response, written)
+    assert sentence in drawn.caption
+
+
 def test_unchecked_values_are_marked_once_in_the_settings_table(folder):
     """No "(m)" in the page; the settings table marks exactly the recalled values."""
     text = folder["text"]
