@@ -419,9 +419,29 @@ def _command_check(args) -> int:
                                "threshold_p95", "night_records", "source", "reason")
                    if c in thresholds.columns]
         print(thresholds[columns].to_string(index=False, float_format=lambda v: f"{v:.3f}"))
+        for line in _outside_range_lines(thresholds):
+            print(line)
     else:
         print("\nscreening and u* threshold: not estimated (run would stop; see the problems)")
     return 1 if (problems or report.warnings) else 0
+
+
+def _outside_range_lines(thresholds) -> list[str]:
+    """A note per row of the u* table whose threshold lies outside its bootstrap 5-95 %
+    range as printed (:func:`fluxpart.ustar_range_note.outside_range_clause`)."""
+    from .ustar_range_note import outside_range_clause
+
+    if not {"threshold", "threshold_p05", "threshold_p95"} <= set(thresholds.columns):
+        return []
+    lines = []
+    for row in thresholds.itertuples(index=False):
+        clause = outside_range_clause(row.threshold, row.threshold_p05, row.threshold_p95)
+        if clause:
+            where = " ".join(str(getattr(row, name)) for name in ("year", "period")
+                             if hasattr(row, name))
+            lines.append(f"  note: {where}: the threshold {row.threshold:.3f} m s-1 lies "
+                         f"{clause}")
+    return lines
 
 
 def _without_detected_years(findings, thresholds) -> list:

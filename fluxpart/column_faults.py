@@ -59,7 +59,7 @@ import pandas as pd
 
 from ._groups import group_positions
 from .uncertainty import gap_runs
-from .variables import saturation_vapour_pressure, vpd_from_rh
+from .variables import saturation_temperature, saturation_vapour_pressure, vpd_from_rh
 
 __all__ = ["FLUX_COPY_WORDS", "GAPLESS_DAYS", "SOIL_RANGE_RATIO", "censored_nee",
            "delayed_tair", "delayed_tair_in_a_year", "dew_point_as_tair",
@@ -1748,8 +1748,7 @@ def delayed_tair(tair, rh, vpd, interval_minutes: float, columns=None) -> str | 
         usable = (np.isfinite(rh) & np.isfinite(vpd) & (rh >= 1.0) & (rh <= _DELAY_MAX_RH)
                   & (vpd > 0))
         saturation = np.where(usable, vpd / (1.0 - rh / 100.0), np.nan)
-        g = np.log(saturation / 6.1094)
-        implied = 243.04 * g / (17.625 - g)        # inverse of e_s = 6.1094 exp(17.625 T / (T + 243.04))
+        implied = saturation_temperature(saturation)
     implied[~np.isfinite(implied) | (implied < -60) | (implied > 60)] = np.nan
     a_implied = _daily_anomaly(implied, per_day)
     a_tair = _daily_anomaly(tair, per_day)
@@ -2735,7 +2734,12 @@ def sun_heated_tair(tair, rh, vpd, rg, columns=None, stamps=None) -> str | None:
     0.012 K per W m-2 of Rg too warm (about 10 K at noon in summer) moved nighttime GPP by
     +289, Reco by +290 and daytime GPP by +266 g C m-2 without a word (round mistakes26).
     The day-minus-night form keeps a constant offset between the two sensors (a
-    calibration, a sonic temperature) out of the rule. Where the whole record is not
+    calibration, a sonic temperature) out of the rule. A VPD computed from RH with a
+    temperature cooler than the air by day, a soil's, gives the same sign (the example's
+    VPD computed with its 5-cm soil temperature: +5.8 K, daytime Reco +18.5 g C m-2,
+    round mistakes42), so the message names both causes; where the soil column is mapped
+    and the VPD follows it, :func:`fluxpart.vpd_soil.vpd_from_soil_temperature` names
+    that instead and this check is not run (round polish48). Where the whole record is not
     named, each calendar month with 100 sunlit and 100 dark records is judged alone: a
     fan stopped in July only moved the example's Reco by +69.3 g C m-2, diluted below
     the rule over the year.
@@ -2758,8 +2762,7 @@ def sun_heated_tair(tair, rh, vpd, rg, columns=None, stamps=None) -> str | None:
         usable = (np.isfinite(tair) & np.isfinite(rh) & np.isfinite(vpd) & np.isfinite(rg)
                   & (rh >= 1.0) & (rh <= _SUNLIT_MAX_RH) & (vpd > 0))
         saturation = np.where(usable, vpd / (1.0 - rh / 100.0), np.nan)
-        g = np.log(saturation / 6.1094)
-        implied = 243.04 * g / (17.625 - g)        # inverse of e_s = 6.1094 exp(17.625 T / (T + 243.04))
+        implied = saturation_temperature(saturation)
         usable &= np.isfinite(implied) & (implied > -60) & (implied < 60)
         sunlit = usable & (rg >= _SUNLIT_RG)
         dark = usable & (rg < _SUNLIT_DARK_RG)
@@ -2780,7 +2783,9 @@ def sun_heated_tair(tair, rh, vpd, rg, columns=None, stamps=None) -> str | None:
             f"{night:+.1f} K): a thermometer heated by the sun (the logger's panel "
             "temperature, a sensor without its radiation shield or with its fan stopped) "
             "reads like this, and respiration extrapolated to its daytime temperatures "
-            "overshoots; map the shielded air temperature as tair")
+            "overshoots; so does a VPD computed from RH with a temperature cooler than "
+            "the air by day (a soil's not mapped as tsoil: the data cannot tell the two "
+            "apart); map the shielded air temperature as tair, or a VPD computed with it")
 
 
 #: Variables judged by :func:`placeholder_value`: quantities that turbulence and the
@@ -2927,4 +2932,6 @@ def _sun_heated_months(difference, sunlit, dark, stamps, names) -> str | None:
             f"{len(found)} month(s): {', '.join(found)} (median excess), while the whole "
             "record does not: a thermometer heated by the sun for a time (a radiation "
             "shield lost or a fan stopped) reads like this, and respiration extrapolated to "
-            "its daytime temperatures overshoots; check those months' air temperature")
+            "its daytime temperatures overshoots; so does a VPD computed in those months "
+            "with a temperature cooler than the air by day (a soil's); check those months' "
+            "air temperature and how their VPD was computed")

@@ -806,6 +806,47 @@ def _sigma_column(frame: pd.DataFrame, flux: str):
     return None
 
 
+#: Fluxes whose truth cannot be negative: GPP (carbon taken up, written positive) and Reco
+#: (carbon released). Their 95 % bands are clipped at zero in the figures.
+_NON_NEGATIVE_PREFIXES = ("gpp", "reco")
+
+
+def band_edges(values, sigma, column: str):
+    """The lower and upper edge of a flux's drawn 95 % band, ±1.96 sigma.
+
+    Parameters
+    ----------
+    values : array_like
+        The flux as written (a daily or monthly sum) [g C m-2 per day or month].
+    sigma : array_like
+        Its written 1-sigma [same unit].
+    column : str
+        The flux's column name; GPP and Reco (``gpp_*``, ``reco_*``) cannot be
+        negative, NEE can.
+
+    Returns
+    -------
+    low, high : numpy.ndarray
+        ``values ∓ 1.96 sigma`` (the normal 95 % quantile, Gaussian errors as the run's
+        uncertainty states them); for GPP and Reco the lower edge is clipped at zero,
+        since a flux that cannot be negative has no probability below it (a symmetric
+        band drew a savanna's daytime Reco down to -5 g C m-2 d-1), but never above the
+        value itself, so that an estimate below zero (GPP as Reco less a measured NEE
+        above it) stays inside its band. The written 1-sigma columns are unchanged.
+
+    References
+    ----------
+    JCGM 100:2008 (GUM), section G.1 and annex G.4 (m): the coverage factor 1.96 of a
+    normal distribution's 95 % interval.
+    """
+    values = np.asarray(values, dtype=float)
+    spread = 1.96 * np.asarray(sigma, dtype=float)
+    low, high = values - spread, values + spread
+    if column.split("_", 1)[0] in _NON_NEGATIVE_PREFIXES:
+        low = np.maximum(low, np.minimum(values, 0.0))
+    return low, high
+
+
 def _respiration_driver(written) -> str:
     """The temperature the run used: the setting, or the choice recorded for ``"auto"``."""
     driver = written.setting("respiration_driver", "tair")
@@ -881,9 +922,8 @@ def figure_daily(drawing, written, interval) -> Figure:
             values = daily[column].to_numpy(dtype=float)
             sigma = _sigma_column(daily, column)
             if sigma is not None:
-                spread = 1.96 * daily[sigma].to_numpy(dtype=float)
-                axis.fill_between(dates, values - spread, values + spread, color=colour,
-                                  alpha=0.25, linewidth=0)
+                low, high = band_edges(values, daily[sigma].to_numpy(dtype=float), column)
+                axis.fill_between(dates, low, high, color=colour, alpha=0.25, linewidth=0)
                 banded.append(column)
             axis.plot(dates, values, color=colour, linestyle=style, linewidth=1.1, label=label)
             drawn = True
@@ -905,7 +945,11 @@ def figure_daily(drawing, written, interval) -> Figure:
         drawing.date_axis(axes[-1], ticks=13)
         drawing.date_guides(axes[:-1], axes[-1])
     figure.suptitle(f"Daily sums, {_span_text(written)}", x=0.08, ha="left", fontsize=10.5)
+    clipped = any(column.split("_", 1)[0] in _NON_NEGATIVE_PREFIXES for column in banded)
     band_text = ("shaded bands are ±1.96 times the daily 1-sigma written by the run"
+                 + (", those of GPP and Reco clipped at zero, as neither flux can be "
+                    "negative (an estimate below zero keeps its line inside the band)"
+                    if clipped else "")
                  if banded else "the run wrote no daily 1-sigma columns, so no bands are drawn")
     moments = ", ".join(f"{e:%Y-%m-%d}" if e == e.normalize() else f"{e:%Y-%m-%d %H:%M}"
                         for e in events)
@@ -1341,7 +1385,10 @@ def figure_monthly(drawing, written) -> Figure:
             continue
         values = monthly[column].to_numpy(dtype=float)
         sigma = _sigma_column(monthly, column)
-        error = 1.96 * monthly[sigma].to_numpy(dtype=float) if sigma else None
+        error = None
+        if sigma:
+            low, high = band_edges(values, monthly[sigma].to_numpy(dtype=float), column)
+            error = np.vstack([values - low, high - values])
         bars = bars or sigma is not None
         axis.errorbar(x, values, yerr=error, color=colour, linestyle=line, marker=marker,
                       markersize=5, markerfacecolor="white" if line == "--" else colour,
@@ -1353,7 +1400,8 @@ def figure_monthly(drawing, written) -> Figure:
     axis.set_title("Monthly sums by both partitioning methods", loc="left")
     # below the axes: inside, it covered the first summer's GPP peak (review43)
     axis.legend(loc="upper center", bbox_to_anchor=(0.5, -0.1), ncols=5, fontsize=8)
-    bar_text = ("error bars are ±1.96 times the monthly 1-sigma written by the run" if bars
+    bar_text = ("error bars are ±1.96 times the monthly 1-sigma written by the run, those of "
+                "GPP and Reco clipped at zero, as neither flux can be negative" if bars
                 else "the run wrote no monthly 1-sigma, so no error bars")
     caption = ("Solid lines (nighttime method) and dashed lines (daytime method) should run "
                f"close together; a month where they split is uncertain in its partitioning; "
@@ -1703,6 +1751,52 @@ _STATE_STYLE = {
 }
 
 
+def window_tally(parameters: pd.DataFrame, states: pd.DataFrame, bound) -> str:
+    """The light-response windows counted by state, the replaced ones at the β0 bound named.
+
+    Parameters
+    ----------
+    parameters : pandas.DataFrame
+        The daytime parameter table (``beta0`` [µmol m-2 s-1] per window).
+    states : pandas.DataFrame
+        :func:`window_status` of it.
+    bound : float or None
+        The run's ``daytime_beta0_max`` [µmol m-2 s-1], as the manifest records it.
+
+    Returns
+    -------
+    str
+        "97 accepted, 83 replaced (35 of them with β0 at its upper bound of 250 µmol m-2
+        s-1 after the refit), 2 rejected"; '' where there are no windows. A window
+        refitted with Rref fixed at its night respiration can sit at the bound again: its
+        light-saturated uptake is then the bound's, not the data's (Lasslop et al. 2010
+        bound β0 for this reason), and counting it among "replaced" alone hid 35 of the
+        grassland example's 83 such windows (polish48).
+
+    References
+    ----------
+    Lasslop, G., et al. (2010). Separation of net ecosystem exchange into assimilation
+    and respiration using a light response curve approach. Global Change Biology 16,
+    187-208 (m).
+    """
+    counts = states["state"].value_counts() if len(states) else pd.Series(dtype=int)
+    _, bound, _ = beta0_scale(np.array([np.nan]), bound)
+    parts = []
+    # the drawn states in their order, then any other an older result's strings give
+    for state in [*_STATE_STYLE, *(s for s in counts.index if s not in _STATE_STYLE)]:
+        if state not in counts.index:
+            continue
+        part = f"{int(counts[state])} {state}"
+        if state == "replaced" and bound is not None and "beta0" in parameters.columns:
+            beta0 = parameters.loc[states["state"] == "replaced", "beta0"].to_numpy(dtype=float)
+            at_bound = int(np.count_nonzero(beta0 >= bound * (1.0 - 1e-6)))
+            if at_bound:
+                part += (f" ({at_bound} of them with β0 at its upper bound of {bound:g} "
+                         f"{_FLUX_UNIT} after the refit)")
+        parts.append(part)
+    return ", ".join(parts)
+
+
 def _light_windows(parameters: pd.DataFrame, states: pd.DataFrame, wanted: int = 4):
     """Up to `wanted` windows with fitted values spread over the record, flagged ones first."""
     columns = ["alpha", "beta0", "k", "rref", "e0"]
@@ -1866,8 +1960,7 @@ def figure_light_response(drawing, written) -> Figure:
         box_bottom = examples[3].get_position() if examples[3].get_visible() else box_top
         bar_axis = figure.add_axes((0.915, box_bottom.y0, 0.015, box_top.y1 - box_bottom.y0))
         figure.colorbar(scatter, cax=bar_axis).set_label("VPD [hPa]")
-    counts = states["state"].value_counts() if len(states) else pd.Series(dtype=int)
-    tally = ", ".join(f"{int(counts[s])} {s}" for s in _STATE_STYLE if s in counts.index)
+    tally = window_tally(parameters, states, written.setting("daytime_beta0_max"))
     # the example panels are framed in red for every window not plainly accepted (at a
     # bound or replaced): the caption said red frames meant a bound only (before review49)
     caption = ("Red triangles are windows whose fit sits at a parameter bound, orange squares "

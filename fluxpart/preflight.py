@@ -82,6 +82,8 @@ night NEE missing below one u* and        input (nee u* filtered)             no
 measured above it (filtered before read)
 VPD 0 in most sunlit, warm records of a   input (vpd zeros)                   no
 month (a rain gauge, a lost sensor)
+VPD and RH implying the soil temperature  input (vpd from tsoil)              no
+(VPD computed with it, not the air's)
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no
@@ -114,6 +116,7 @@ from . import (
     solar,
     tair_days,
     ustar_prefilter,
+    vpd_soil,
     vpd_zero,
 )
 from .column_faults import (
@@ -575,8 +578,18 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
             screened.index, names)
         if exchanged:
             findings.append(Finding("input (vpd exchanged)", exchanged, False))
-        if "rg" in screened.columns and not exchanged:
-            # a thermometer heated by the sun (round mistakes26)
+        soil = None
+        if "tsoil" in screened.columns and not exchanged:
+            # a VPD computed with the soil temperature, named by its cause where the
+            # soil column tells it (round polish48; the sun-heated check blamed tair)
+            soil = vpd_soil.vpd_from_soil_temperature(
+                screened["tair"].to_numpy(dtype=float), screened["rh"].to_numpy(dtype=float),
+                screened["vpd"].to_numpy(dtype=float), screened["tsoil"].to_numpy(dtype=float),
+                names)
+            if soil:
+                findings.append(Finding(vpd_soil.STAGE, soil, False))
+        if "rg" in screened.columns and not exchanged and not soil:
+            # a thermometer heated by the sun, or a VPD of another temperature (mistakes26)
             text = sun_heated_tair(screened["tair"].to_numpy(dtype=float),
                                    screened["rh"].to_numpy(dtype=float),
                                    screened["vpd"].to_numpy(dtype=float),

@@ -55,6 +55,7 @@ from .figures import (
     period_masks,
     unfitted_methods,
     window_status,
+    window_tally,
 )
 from .manifest import CAUTION, NEE_SCOPE, shown_name
 from .measured_months import month_runs_text, unchecked_months
@@ -72,6 +73,7 @@ from .resultdir import (
 from .store import atomic_write_bytes, full_disk_remedy, require_owner_access
 from .uncertainty_parts import PART_LABELS, uncertainty_parts
 from .units import CARBON_UNIT, FLUX_UNIT, T_CO2_HA_PER_G_C_M2, display_unit
+from .ustar_range_note import outside_range_clause
 
 __all__ = ["FIGURES", "build_report", "command_report", "read_written"]
 
@@ -258,7 +260,11 @@ def _ustar_range(written: Written, year) -> str:
     low, high = rows.loc[year, "threshold_p05"], rows.loc[year, "threshold_p95"]
     if not (_finite(low) and _finite(high)):
         return ""
-    return f" (bootstrap 5–95 %: {float(low):.3f}–{float(high):.3f} m s-1)"
+    # a threshold outside its own range, said with why (round ustar47's diagnosis)
+    outside = (outside_range_clause(rows.loc[year, "threshold"], low, high)
+               if "threshold" in rows.columns else "")
+    return (f" (bootstrap 5–95 %: {float(low):.3f}–{float(high):.3f} m s-1"
+            f"{'; ' + outside if outside else ''})")
 
 
 def _ustar_fact(written: Written, label, row, mask) -> str:
@@ -1031,8 +1037,7 @@ def _windows_html(written: Written, metadata: dict) -> str:
     if not len(parameters):
         return ""
     states = window_status(parameters)
-    counts = states["state"].value_counts()
-    tally = ", ".join(f"{int(n)} {state}" for state, n in counts.items())
+    tally = window_tally(parameters, states, written.setting("daytime_beta0_max"))
     flagged = parameters[states["state"] != "accepted"]
     columns = [c for c in ("window_start", "window_end", "points", "alpha", "beta0", "k", "rref")
                if c in flagged.columns]

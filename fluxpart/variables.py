@@ -379,6 +379,33 @@ def saturation_vapour_pressure(tair):
     return 6.1094 * np.exp(17.625 * tair / (tair + 243.04))
 
 
+def saturation_temperature(vapour_pressure):
+    """The temperature at which the saturation vapour pressure is the one given.
+
+    Parameters
+    ----------
+    vapour_pressure : array_like
+        Saturation vapour pressure [hPa] (positive).
+
+    Returns
+    -------
+    numpy.ndarray
+        Temperature [°C], the inverse of :func:`saturation_vapour_pressure`:
+        ``243.04 g / (17.625 - g)`` with ``g = ln(e / 6.1094)``; NaN or inf where the
+        pressure is not positive (no warning raised). With ``e = VPD / (1 - RH / 100)``
+        it is the temperature a humidity probe's VPD and RH imply; with the actual
+        vapour pressure, the dew point.
+
+    References
+    ----------
+    Alduchov, O. A. & Eskridge, R. E. (1996). Improved Magnus form approximation of
+    saturation vapor pressure. Journal of Applied Meteorology 35:601–609, eq. 21.
+    """
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        g = np.log(np.asarray(vapour_pressure, dtype=float) / 6.1094)
+        return 243.04 * g / (17.625 - g)
+
+
 def vpd_from_rh(rh, tair):
     """Vapour pressure deficit from relative humidity and air temperature.
 

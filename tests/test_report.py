@@ -675,6 +675,35 @@ def test_daily_figure_marks_the_declared_events_within_the_record(folder):
     assert "1999" not in drawn.caption
 
 
+def test_daily_bands_of_gpp_and_reco_stop_at_zero(folder):
+    """GPP and Reco cannot be negative, so their 95 % band (±1.96 sigma, the normal
+    coverage factor, JCGM 100:2008 annex G (m)) has no probability below zero: the
+    symmetric band drew a savanna's daytime Reco down to -5 g C m-2 d-1 (polish48). The
+    drawn band's lower edge is clipped at zero (down to an estimate below zero, which
+    stays inside its band); NEE's stays symmetric; the written 1-sigma is unchanged."""
+    values = np.array([3.0, 0.5, -0.2, np.nan])
+    sigma = np.array([1.0, 1.0, 1.0, 1.0])
+    low, high = figures.band_edges(values, sigma, "reco_daytime")
+    np.testing.assert_allclose(low, [3.0 - 1.96, 0.0, -0.2, np.nan])
+    np.testing.assert_allclose(high, values + 1.96)
+    low, _ = figures.band_edges(values, sigma, "nee")
+    np.testing.assert_allclose(low, values - 1.96)
+    written = read_written(folder["directory"])
+    daily = written.table("daily")
+    drawn, axes = _painted(figures.figure_daily, written, 30)
+    assert "those of GPP and Reco clipped at zero" in drawn.caption
+    lowest = [min(path.vertices[:, 1].min() for c in axis.collections for path in c.get_paths())
+              for axis in axes]
+    floor = {name: min(float(np.nanmin(daily[name])), 0.0) for name in
+             ("gpp_nighttime", "gpp_daytime", "reco_nighttime", "reco_daytime")}
+    assert lowest[1] >= min(floor["gpp_nighttime"], floor["gpp_daytime"]) - 1e-9
+    assert lowest[2] >= min(floor["reco_nighttime"], floor["reco_daytime"]) - 1e-9
+    nee = daily["nee"] - 1.96 * daily["nee_sigma"]
+    assert lowest[0] == pytest.approx(float(nee.min()))
+    # the demo's bands did cross zero: the rule has something to clip
+    assert ((daily["gpp_daytime"] - 1.96 * daily["gpp_daytime_sigma"]) < 0).any()
+
+
 def test_the_provenance_table_reads_as_words_not_python(folder):
     """The clock check and demo rows of the provenance table are plain words with the
     values the manifest records (read back with the standard library's json), not a
@@ -763,7 +792,10 @@ def test_a_budget_year_names_each_calendar_years_u_star_threshold_with_its_own_r
         r"u\* threshold:</strong>(.*?)</li>", summary).group(1)))
     assert line.startswith(" 0.181 m s-1, the largest of the thresholds of the calendar years")
     assert "2021: 0.152 m s-1 (bootstrap 5–95 %: 0.147–0.174 m s-1)" in line
-    assert "2022: 0.181 m s-1 (bootstrap 5–95 %: 0.148–0.176 m s-1)" in line
+    # 0.181 above its own 0.148-0.176 is said, with why (polish48; round ustar47)
+    assert ("2022: 0.181 m s-1 (bootstrap 5–95 %: 0.148–0.176 m s-1; above its bootstrap "
+            "range, as can happen: each draw runs the same detector") in line
+    assert "0.174 m s-1; " not in line
     assert "0.181 m s-1 (bootstrap 5–95 %: 0.147" not in line
     # a calendar budget year keeps the one threshold with its own range
     index = pd.date_range("2021-01-01", "2021-12-31 23:30", freq="30min")
@@ -926,6 +958,34 @@ def test_window_status_reads_strings_and_flags():
     assert states.loc[3, "why"] == "no convergence, neighbour used"
 
 
+def test_window_counts_name_the_replaced_windows_left_at_the_beta0_bound(folder):
+    """A window refitted with Rref fixed at its night respiration can sit at the β0 bound
+    again (daytime_beta0_max, 250 µmol m-2 s-1, Lasslop et al. 2010 (m)); the counts put
+    those among "replaced" alone (the demo: 83 of 182 replaced, many at 250; polish48).
+    Now the page and the light-response caption name how many replaced windows sit at
+    the bound, counted from the written β0."""
+    parameters = pd.DataFrame({"status": ["accepted", "replaced: x", "replaced: y",
+                                          "rejected: z", "replaced: w"],
+                               "beta0": [30.0, 250.0, 40.0, 250.0, 250.0]})
+    states = window_status(parameters)
+    assert figures.window_tally(parameters, states, 250.0) == (
+        "1 accepted, 3 replaced (2 of them with β0 at its upper bound of 250 µmol m-2 s-1 "
+        "after the refit), 1 rejected")
+    assert figures.window_tally(parameters, states, None) == "1 accepted, 3 replaced, 1 rejected"
+    assert figures.window_tally(parameters, states, 400.0) == "1 accepted, 3 replaced, 1 rejected"
+    written = read_written(folder["directory"])
+    parameters = written.table("parameters_daytime")
+    bound = float(written.setting("daytime_beta0_max"))
+    replaced = window_status(parameters)["state"] == "replaced"
+    at_bound = int((parameters.loc[replaced, "beta0"] >= bound).sum())
+    assert at_bound > 0
+    sentence = (f"{int(replaced.sum())} replaced ({at_bound} of them with β0 at its upper "
+                f"bound of {bound:g} µmol m-2 s-1 after the refit)")
+    assert sentence in html.unescape(folder["text"])
+    drawn, _ = _painted(figures.figure_light_response, written)
+    assert sentence in drawn.caption
+
+
 def test_unchecked_values_are_marked_once_in_the_settings_table(folder):
     """No "(m)" in the page; the settings table marks exactly the recalled values."""
     text = folder["text"]
@@ -946,7 +1006,7 @@ def test_report_modules_import_no_pipeline_or_method_module():
     """The report reads the folder only: its modules import no pipeline or method module."""
     allowed = {"config", "constants", "errors", "figures", "manifest", "store", "units",
                "responses", "progress", "resultdir", "fingerprint", "uncertainty_parts",
-               "measured_months", "install_hints"}
+               "measured_months", "install_hints", "ustar_range_note"}
     root = Path(fluxpart.__file__).parent
     for name in ("report.py", "figures.py"):
         tree = ast.parse((root / name).read_text(encoding="utf-8"))

@@ -7,6 +7,7 @@ from conftest import load_reference
 
 from fluxpart.errors import UnitError
 from fluxpart.variables import (
+    READER_VARIABLES,
     REQUIRED,
     VARIABLES,
     saturation_vapour_pressure,
@@ -24,6 +25,22 @@ def test_canonical_units_match_design():
                 "ustar": "m s-1", "tsoil": "°C", "rh": "%", "nee_flag": "1"}
     assert {name: v.unit for name, v in VARIABLES.items()} == expected
     assert set(REQUIRED) == {"nee", "rg", "tair", "vpd", "ustar"}
+
+
+def test_the_readme_variables_table_states_the_units_check_prints():
+    """The README's table of canonical variables gives each the unit `check` prints
+    (:data:`READER_VARIABLES`); ``nee_flag`` is a pure number, written "1" as the CF
+    conventions write a dimensionless unit (CF conventions 1.11, section 3.1 (m)); the
+    README said "–" (polish48)."""
+    from pathlib import Path
+
+    readme = (Path(__file__).parents[1] / "README.md").read_text(encoding="utf-8")
+    table = readme.split("### Canonical variables and units", 1)[1].split("\n\n", 2)[1]
+    rows = {}
+    for line in table.splitlines()[2:]:
+        cells = [cell.strip() for cell in line.strip("|").split("|")]
+        rows[cells[0].strip("`")] = cells[2].split(" (", 1)[0]
+    assert rows == {name: v.unit for name, v in READER_VARIABLES.items()}
 
 
 def test_kelvin_to_celsius_offset():
