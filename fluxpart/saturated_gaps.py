@@ -250,7 +250,7 @@ def saturated_gap_warnings(table: pd.DataFrame, nee_sigma,
         shift = float(in_sigmas[year])
         coverage = normal.cdf(quantile - shift) - normal.cdf(-quantile - shift)
         less = "less" if row["contrast"] > 0 else "more"
-        why = ("wet leaves photosynthesise less" if row["contrast"] > 0 else
+        why = ("likely wet leaves, which photosynthesise less" if row["contrast"] > 0 else
                "the state of saturated air differs from that of drier air at this site")
         low = "low (too much uptake)" if row["potential_bias"] < 0 else "high (too little uptake)"
         out.append(
