@@ -250,7 +250,7 @@ def saturated_gap_warnings(table: pd.DataFrame, nee_sigma,
         shift = float(in_sigmas[year])
         coverage = normal.cdf(quantile - shift) - normal.cdf(-quantile - shift)
         less = "less" if row["contrast"] > 0 else "more"
-        why = ("wet leaves photosynthesise less" if row["contrast"] > 0 else
+        why = ("likely wet leaves, which photosynthesise less" if row["contrast"] > 0 else
                "the state of saturated air differs from that of drier air at this site")
         low = "low (too much uptake)" if row["potential_bias"] < 0 else "high (too little uptake)"
         out.append(
@@ -268,7 +268,8 @@ def saturated_gap_warnings(table: pd.DataFrame, nee_sigma,
             f"truth about {100 * coverage:.0f} % of the time (its artificial gaps sit on "
             "measured, mostly dry records). An analyser that loses its records in fog or rain "
             "causes it; nothing in the file tells wet leaves from dry ones, so read the size "
-            "as an estimate from the few measured saturated records, not a correction")
+            "as an estimate from the few measured saturated records, not a correction, and "
+            "state it beside the year's NEE and its interval, which do not include it")
     return out
 
 

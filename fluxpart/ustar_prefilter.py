@@ -90,7 +90,8 @@ def nee_filtered_by_ustar(nee, ustar, is_night, names=None, index=None) -> str |
 
     Notes
     -----
-    The night records with u* are sorted by u*. The cut splits them where the share of
+    The night records with u* above 0 (a u* of 0 or less is a code for missing, not a
+    measurement) are sorted by u*. The cut splits them where the share of
     measured NEE above it exceeds the share below it by the most standard errors (the
     two-proportion z statistic, Fleiss et al. 2003 (m); the k calmest records below); it is
     named where the share below is at most :data:`MAX_SHARE_BELOW`, k reaches
@@ -164,7 +165,11 @@ def _split(nee, ustar, night):
     """The split of `night` records by u* the rule names, as (cut [m s-1], records below,
     of them without NEE, their share of the night records, share measured above), or
     None."""
-    night = night & np.isfinite(ustar)
+    with np.errstate(invalid="ignore"):
+        # u* is the fourth root of a sum of squared covariances, above 0 in any measured
+        # record: 0 is a logger's code for missing, written where the sonic (and so the
+        # flux) was lost, which otherwise read as a filter at the lowest u* measured
+        night = night & np.isfinite(ustar) & (ustar > 0.0)
     if night.sum() < MIN_RECORDS_BELOW * 2:
         return None
     order = np.argsort(ustar[night], kind="stable")

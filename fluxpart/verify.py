@@ -363,8 +363,10 @@ class VerifyReport:
                              "folder (or its tables and run log replaced by another run's): "
                              f"{self.replaced_manifest}")
             elif self.code_changed and any(d.kind in ("value", "rows", "columns", "table",
-                                                    "rounding", "manifest")
+                                                    "rounding", "manifest", "metadata")
                                          for d in failures + list(self.rounding)):
+                # "metadata": a column's description reworded by the newer code (0.30.0's
+                # ustar_threshold) left an auditor a NOT reproduced without any cause
                 lines.append("likely cause: " + (
                     f"{', '.join(edited)} changed after it was written (its SHA-256 or the "
                     "manifest's seal is not the recorded one), which no code change "

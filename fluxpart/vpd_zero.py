@@ -28,7 +28,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["STAGE", "SUNLIT_RG", "WARM_TAIR", "ZERO_VPD", "vpd_zero_in_sunshine"]
+__all__ = ["STAGE", "SUNLIT_RG", "WARM_TAIR", "ZERO_SHARE", "ZERO_VPD",
+           "vpd_zero_in_sunshine"]
 
 #: The stage named in the preflight finding.
 STAGE = "input (vpd zeros)"

@@ -76,6 +76,7 @@ def test_the_warning_names_the_bias_and_the_coverage_it_leaves():
     assert text.startswith("2021: 500 of the 1000 daytime NEE gaps (50 %) fall in saturated")
     assert "run low (too much uptake) by about 32 g C m-2, 3.2 times the sigma" in text
     assert f"about {100 * coverage:.0f} % of the time" in text
+    assert text.endswith("beside the year's NEE and its interval, which do not include it")
     one = stats.norm.cdf(1.96 - 1) - stats.norm.cdf(-1.96 - 1)
     assert round(100 * one) == 83          # the figure MIN_BIAS_SIGMAS' comment quotes
     assert saturated_gaps.saturated_gap_warnings(table.assign(potential_bias=-9.0),

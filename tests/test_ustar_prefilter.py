@@ -76,3 +76,21 @@ def test_the_example_as_written_is_quiet_and_filtered_below_its_threshold_is_nam
     with np.errstate(invalid="ignore"):
         filtered = np.where(night & (ustar < 0.2), np.nan, nee)
     assert "below 0.2 m s-1" in nee_filtered_by_ustar(filtered, ustar, night)
+
+
+def test_ustar_written_0_where_the_sonic_was_lost_is_no_filter():
+    """Invented nights: a sonic lost in a tenth of the records, its u* written as 0 and its
+    NEE missing (the flux needs the sonic). u* is the fourth root of (u'w'^2 + v'w'^2)
+    (Stull 1988 (m)), above 0 in any measured record, so those zeros are a code: not
+    named as a u* filter at the lowest u* measured, while a filter at 0.25 m s-1 on the
+    same record still is."""
+    rng = np.random.default_rng(5)
+    ustar = rng.lognormal(np.log(0.2), 0.6, 6000)
+    kept = rng.random(ustar.size) < 0.15 + 0.7 * (1.0 - np.exp(-ustar / 0.15))
+    nee = np.where(kept, rng.normal(3.0, 1.0, ustar.size), np.nan)
+    lost = rng.random(ustar.size) < 0.1
+    nee[lost], ustar[lost] = np.nan, 0.0
+    night = np.ones(ustar.size, dtype=bool)
+    assert nee_filtered_by_ustar(nee, ustar, night) is None
+    text = nee_filtered_by_ustar(np.where(ustar < 0.25, np.nan, nee), ustar, night)
+    assert text is not None and "below 0.25" in text    # the cut: 0.25 to 3 digits

@@ -316,6 +316,29 @@ def test_resealed_unit_or_site_metadata_edit_is_not_reproduced(copy, capsys):
     assert "annual" not in out.split("result:")[0]          # the other tables still match
 
 
+def test_a_description_reworded_by_other_code_names_the_code_as_likely_cause(
+        copy, monkeypatch, capsys):
+    """An auditor's newer install rewords a column's description (values equal, as the
+    ``ustar_threshold`` text after 0.30.0): NOT reproduced on the metadata, and the verdict
+    names the changed code as the likely cause. The environment line no longer says so of
+    "any difference" (review49), and the cause line had left metadata out: no cause at
+    all was given."""
+    import fluxpart.verify as module
+
+    real = module.code_fingerprint()
+    monkeypatch.setattr(module, "code_fingerprint", lambda: {**real, "sha256": "f" * 64})
+    path = copy / "out" / "daily.parquet"
+    arrow = pq.read_table(path)
+    fields = [item.with_metadata({**item.metadata, b"description": b"worded otherwise"})
+              if item.name == "nee" else item for item in arrow.schema]
+    pq.write_table(arrow.cast(pa.schema(fields, metadata=arrow.schema.metadata)), path)
+    _edit_manifest(copy / "out", lambda m: m["tables"]["daily"].update(sha256=file_sha256(path)),
+                   reseal=True)
+    assert main(["verify", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert "daily: metadata 'nee description' differs (values equal)" in out
+    assert "likely cause: the product's code differs" in out
+
 def _rewrite_metadata(folder, table, change):
     """Rewrite a table's file metadata by `change(dict)`, its hash and the seal forged."""
     path = folder / f"{table}.parquet"
