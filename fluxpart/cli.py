@@ -896,6 +896,18 @@ def _tolerate_encoding(stream) -> str | None:
     return errors
 
 
+#: What the dynamic loader says (glibc's dlopen (m)) when the address space left is too
+#: small to map a shared library: its segments, its zero-filled pages or its descriptor
+_UNMAPPED_LIBRARY = ("failed to map segment from shared object", "cannot map zero-fill pages",
+                     "cannot allocate memory")
+
+
+def _library_not_mapped(error: ImportError) -> str | None:
+    """The loader's words where `error` is a library refused its memory, else None."""
+    text = str(error).lower()
+    return next((words for words in _UNMAPPED_LIBRARY if words in text), None)
+
+
 def main(argv=None) -> int:
     """Run the command line; return the exit status.
 
@@ -972,6 +984,16 @@ def main(argv=None) -> int:
         # any exception (resultdir.swapped_in), so the folder is as it was
         print(f"error: ran out of memory (a memory limit of this process: ulimit -v, a "
               f"container's or a batch job's); "
+              f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
+              "memory", file=sys.stderr)
+        return 2
+    except ImportError as error:
+        if not _library_not_mapped(error):
+            raise
+        # a compiled library (pandas', SciPy's OpenBLAS) that a memory limit leaves no room to
+        # load: a 15-line traceback, exit 1 (ulimit -v 150 and 200 MB in run, faults36)
+        print(f"error: ran out of memory loading a library ({_library_not_mapped(error)}; "
+              "a memory limit of this process: ulimit -v, a container's or a batch job's); "
               f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
               "memory", file=sys.stderr)
         return 2
