@@ -821,6 +821,8 @@ def f_readonly_rerun():
                 subprocess.run(["umount", str(parent)])
         record(f"a result folder {how}, then run and report again",
                locked and one_line(done) and one_line(rep) and table_digests(folder) == before
+               and ("chattr" in done.stderr and "chmod" not in done.stderr
+                    if how.startswith("immutable") else "read-only" in done.stderr)
                and not leftovers(parent)
                and verify(folder, "--input", W / "b" / "tower.csv").returncode == 0,
                f"locked {locked}, run {done.returncode} {_stderr_tail(done, 110)}, report "

@@ -1,0 +1,101 @@
+"""Result safety faults found by round faults36 (invented data only).
+
+Each test fails on the code before the fix it names.
+"""
+from __future__ import annotations
+
+import csv
+import shutil
+import subprocess
+
+import pytest
+
+from fluxpart import resultdir
+from fluxpart.cli import main
+from fluxpart.errors import InputFileError
+from fluxpart.overlong_values import refuse_overlong_value
+
+
+def _one_error_line(capsys) -> str:
+    err = [line for line in capsys.readouterr().err.splitlines()
+           if not line.startswith("warning:")]
+    assert len(err) == 1 and err[0].startswith("error:"), err
+    return err[0]
+
+
+def _chattr(flag: str, *paths) -> bool:
+    try:
+        return subprocess.run(["chattr", flag, *map(str, paths)],
+                              capture_output=True).returncode == 0
+    except OSError:
+        return False
+
+
+@pytest.mark.parametrize("flag, attribute", [("+i", "immutable"), ("+a", "append-only")])
+def test_an_immutable_or_append_only_result_names_chattr_not_chmod(bundle, tmp_path, flag,
+                                                                   attribute):
+    """An inode attribute (chattr +i / +a, a backup tool's or an archivist's protection)
+    keeps every entry of a folder, root included, whatever its mode (ioctl_iflags(2) (m)).
+    The write-protected message asked for ``chmod -R u+w``, which changes nothing there;
+    an append-only folder passed access(2) and the run failed after its whole computation
+    with "Operation not permitted". Both are now refused before the run, naming the
+    attribute and chattr."""
+    folder = tmp_path / "out"
+    shutil.copytree(bundle / "out", folder)
+    assert resultdir.replace_refusal(folder) is None
+    if not _chattr(flag, folder):
+        pytest.skip("chattr is refused here (not root, or a file system without flags)")
+    try:
+        reason = resultdir.replace_refusal(folder)
+    finally:
+        _chattr(flag.replace("+", "-"), folder)
+    assert reason is not None and "write-protected" in reason, reason
+    assert f"its {attribute} attribute" in reason and "chattr -R -i -a" in reason
+    assert "chmod" not in reason
+    assert resultdir.replace_refusal(folder) is None
+
+
+def test_a_library_a_memory_limit_cannot_load_is_one_line(tmp_path, capsys, monkeypatch):
+    """Under ``ulimit -v`` 150 to 220 MB, `run` ended with a 15-line traceback and exit 1:
+    the dynamic loader could not map pandas' or SciPy's compiled library (ImportError
+    "failed to map segment from shared object", glibc's dlopen (m)). Now one line, exit 2;
+    another ImportError still raises."""
+    from fluxpart import fingerprint
+
+    def refused():
+        raise ImportError("libscipy_openblas.so: failed to map segment from shared object")
+
+    monkeypatch.setattr(fingerprint, "load_blas_libraries", refused)
+    args = ["run", str(tmp_path / "site.toml"), "--out", str(tmp_path / "out"), "--quiet"]
+    assert main(args) == 2
+    line = _one_error_line(capsys)
+    assert "ran out of memory loading a library" in line and "failed to map segment" in line
+    assert not (tmp_path / "out").exists()
+
+    def missing():
+        raise ImportError("No module named 'scipy'")
+
+    monkeypatch.setattr(fingerprint, "load_blas_libraries", missing)
+    with pytest.raises(ImportError, match="No module named"):
+        main(args)
+
+
+def test_a_value_longer_than_the_csv_field_limit_is_refused_by_its_line(copy, capsys):
+    """A line of 100 MB without a newline in the input (a logger's memory dumped into the
+    file) ended `run` with ``_csv.Error: field larger than field limit (131072)`` and a
+    traceback (Python's csv module: ``csv.field_size_limit``, 131 072 by default (m)).
+    Now one line naming the line; a long line of short fields is read as before."""
+    limit = csv.field_size_limit()
+    text = "a,b\n1,2\n" + "9" * (limit + 1) + "\n3,4\n"
+    with pytest.raises(InputFileError, match=r"line 3 holds a value of 131,073 characters"):
+        refuse_overlong_value("x.csv", text, ",", "whitespace")
+    wide = "a,b\n" + ",".join(["1.5"] * (limit // 3)) + "\n"
+    refuse_overlong_value("x.csv", wide, ",", "whitespace")             # read as before
+    refuse_overlong_value("x.csv", wide.replace(",", " "), "whitespace", "whitespace")
+    lines = (copy / "tower.csv").read_text().splitlines(keepends=True)
+    (copy / "tower.csv").write_text("".join(lines[:50]) + "7" * (limit + 5) + "\n"
+                                    + "".join(lines[50:]))
+    assert main(["run", str(copy / "site.toml"), "--out", str(copy / "new"), "--quiet"]) == 2
+    line = _one_error_line(capsys)
+    assert "line 51 holds a value of" in line and "tower.csv" in line
+    assert not (copy / "new").exists()
