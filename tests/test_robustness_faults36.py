@@ -80,6 +80,51 @@ def test_a_library_a_memory_limit_cannot_load_is_one_line(tmp_path, capsys, monk
         main(args)
 
 
+def test_a_silent_import_failure_under_a_memory_limit_is_one_line(tmp_path, capsys,
+                                                                   monkeypatch):
+    """Under ``ulimit -v`` 300 MB `run` ended with "SystemError: error return without
+    exception set" from the import machinery (a compiled module's initialisation that
+    could not allocate and said nothing) and exit 1. Now one line, exit 2, where the
+    process runs under an address-space limit; the same error without a limit, or
+    outside an import, still raises (an interpreter or extension bug)."""
+    import importlib
+
+    from fluxpart import cli, fingerprint
+
+    def failing_import():
+        importlib.import_module("fluxpart._faults36_absent_module")
+
+    def silent_failure(*args, **kwargs):
+        raise SystemError("error return without exception set")
+
+    class Finder:                     # the import machinery's last frame, as seen
+        @staticmethod
+        def find_spec(name, path=None, target=None):
+            if name == "fluxpart._faults36_absent_module":
+                return importlib.util.spec_from_loader(name, Loader())
+            return None
+
+    class Loader(importlib.abc.Loader):
+        def create_module(self, spec):
+            return None
+
+        exec_module = staticmethod(silent_failure)
+
+    monkeypatch.setattr("sys.meta_path", [Finder(), *__import__("sys").meta_path])
+    monkeypatch.setattr(fingerprint, "load_blas_libraries", failing_import)
+    args = ["run", str(tmp_path / "site.toml"), "--out", str(tmp_path / "out"), "--quiet"]
+    monkeypatch.setattr(cli, "_address_space_limited", lambda: True)
+    assert main(args) == 2
+    assert "ran out of memory loading a library" in _one_error_line(capsys)
+    monkeypatch.setattr(cli, "_address_space_limited", lambda: False)
+    with pytest.raises(SystemError):
+        main(args)
+    monkeypatch.setattr(cli, "_address_space_limited", lambda: True)
+    monkeypatch.setattr(fingerprint, "load_blas_libraries", silent_failure)
+    with pytest.raises(SystemError):
+        main(args)
+
+
 def test_a_value_longer_than_the_csv_field_limit_is_refused_by_its_line(copy, capsys):
     """A line of 100 MB without a newline in the input (a logger's memory dumped into the
     file) ended `run` with ``_csv.Error: field larger than field limit (131072)`` and a
