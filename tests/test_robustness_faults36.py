@@ -125,6 +125,33 @@ def test_a_silent_import_failure_under_a_memory_limit_is_one_line(tmp_path, caps
         main(args)
 
 
+def test_openblas_is_not_loaded_without_room_for_its_buffers(monkeypatch):
+    """OpenBLAS loaded with no room for its 32 MiB work buffer retries the buffer's mmap
+    without end (`run` hung under ulimit -v 160 MB in SciPy's ``gotoblas_init``, the
+    folder locked; SIGTERM cannot reach a C loop), or ends the process after 10 retries
+    with exit 1 (NumPy's, ulimit -v 100 MB). The room under the limit is asked first and
+    its lack is a MemoryError, which the command line says in one line; with room, or
+    without a limit, nothing changes."""
+    from fluxpart import fingerprint
+
+    monkeypatch.setattr(fingerprint, "_address_headroom", lambda: 40 << 20)
+    with pytest.raises(MemoryError, match="64 MiB for NumPy's OpenBLAS work buffers, 40 MiB"):
+        fingerprint.reserve_numpy_blas.__wrapped__()
+    with pytest.raises(MemoryError, match="to load libscipy_openblas"):
+        fingerprint.require_address_space(2 * fingerprint.OPENBLAS_BUFFER,
+                                          "to load libscipy_openblas.so")
+    monkeypatch.setattr(fingerprint, "_address_headroom", lambda: 1 << 30)
+    fingerprint.reserve_numpy_blas.__wrapped__()
+    monkeypatch.setattr(fingerprint, "_address_headroom", lambda: None)
+    fingerprint.reserve_numpy_blas.__wrapped__()
+    monkeypatch.undo()
+    import resource
+
+    soft = resource.getrlimit(resource.RLIMIT_AS)[0]
+    room = fingerprint._address_headroom()
+    assert (room is None) if soft == resource.RLIM_INFINITY else 0 < room < soft
+
+
 def test_a_value_longer_than_the_csv_field_limit_is_refused_by_its_line(copy, capsys):
     """A line of 100 MB without a newline in the input (a logger's memory dumped into the
     file) ended `run` with ``_csv.Error: field larger than field limit (131072)`` and a
