@@ -2,7 +2,7 @@
 
 Run by hand from the repository root: ``.venv/bin/python tests/benchmarks/probe_faults.py``
 (``--dir DIR`` for the scratch folder, default a new temporary one; names of fault
-functions, e.g. ``f_signals f_injected``, to run only those). Round faults35.
+functions, e.g. ``f_signals f_injected``, to run only those). Rounds faults35 and faults36.
 
 Each fault runs the command line (``python -m fluxpart`` of this tree, in a fresh
 process) on a 30-day bundle cut from the invented Quillmoor example
@@ -25,6 +25,17 @@ the result moved while report writes; verify of a result of another CPU and Pyth
 patch; the input rewritten while read; a Dask batch stopped by SIGTERM or SIGUSR1 with
 sites finished, the same signals and SIGHUP to every process of the job, a worker
 killed as by the OOM killer, a batch into an odd folder name.
+
+Round faults36 (machine and file-system faults; mount(8) and chattr(1) need root, and
+a container that refuses them leaves those faults unprobed): a file-size limit, too few
+file descriptors and a memory limit (setrlimit(2)); a real full disk (a small tmpfs); a
+result made immutable or put on a read-only mount; the input a FIFO, a link, renamed
+over or cut mid-row while read, a 100 MB line, a damaged compressed copy; the out folder
+a link, a file, another tool's folder, on a non-UTF-8 path or a path with quotes; two
+runs into one folder; a stale lock of another host; damaged tables and manifests given
+to verify; a decimal-comma locale and an unknown TZ (bytes); files dated 2100; hard-linked
+copies; a report folder linked to the user's; a batch killed with -9, on a full disk and
+under ulimit -n.
 """
 import hashlib
 import os
@@ -615,32 +626,38 @@ def f_open_file_limit():
            all(s[2] for s in seen) and not leftovers(W), f"{seen}")
 
 
+def _limited_or_hung(limits, *args, timeout=120):
+    try:
+        return limited(limits, *args, timeout=timeout)
+    except subprocess.TimeoutExpired:
+        return subprocess.CompletedProcess(args, "hung", "", f"(still running after {timeout} s)")
+
+
 def f_memory_limit():
     """An address-space limit (``ulimit -v``, RLIMIT_AS) met at several points of a run
-    with 2000 u* bootstrap draws and 5000 Monte Carlo draws."""
+    with 2000 u* bootstrap and 5000 Monte Carlo draws (from loading the libraries to the
+    Monte Carlo), and of verify and report."""
     import resource
     text = (W / "b" / "site.toml").read_text()
     (W / "b" / "heavy.toml").write_text(text.replace(
         'ustar_method = "fixed"\nustar_threshold = 0.2\n', "ustar_bootstrap_draws = 2000\n")
         .replace("random_error_draws = 20", "random_error_draws = 5000"))
-    seen = []
-    for megabytes in (150, 200, 250, 300, 400, 500, 700):
-        folder = fresh("mem")
-        before = table_digests(folder)
-        done = limited({resource.RLIMIT_AS: megabytes << 20}, "run", "heavy.toml", "--out",
-                       folder, "--quiet")
-        fine = (done.returncode == 0 and verify(folder).returncode == 0) or (
-            one_line(done) and _intact(folder, before))
-        seen.append((megabytes, done.returncode, fine, done.stderr.strip()[-60:]))
-    record("a memory limit (ulimit -v 150 .. 700 MB) in a run of 2000 u* bootstrap and 5000 "
-           "Monte Carlo draws", all(s[2] for s in seen) and not leftovers(W), f"{seen}")
-    seen = []
-    for megabytes in (150, 200, 300):
-        done = limited({resource.RLIMIT_AS: megabytes << 20}, "verify", "--quiet", W / "r0")
-        seen.append((megabytes, done.returncode, done.returncode == 0 or one_line(done),
-                     done.stderr.strip()[-60:]))
-    record("a memory limit (ulimit -v 150 .. 300 MB) in verify", all(s[2] for s in seen),
-           f"{seen}")
+    for command, sizes in (("run", (100, 160, 200, 250, 300, 350, 400, 500)),
+                           ("verify", (100, 160, 200, 300)), ("report", (160, 300))):
+        seen = []
+        for megabytes in sizes:
+            folder = fresh("mem")
+            before = table_digests(folder)
+            args = {"run": ["run", "heavy.toml", "--out", folder, "--quiet"],
+                    "verify": ["verify", "--quiet", folder],
+                    "report": ["report", "--quiet", folder]}[command]
+            done = _limited_or_hung({resource.RLIMIT_AS: megabytes << 20}, *args)
+            fine = (done.returncode == 0 and verify(folder).returncode == 0) or (
+                one_line(done) and _intact(folder, before) and not leftovers(folder))
+            seen.append((megabytes, done.returncode, fine, done.stderr.strip()[-50:]))
+        record(f"a memory limit (ulimit -v {sizes[0]} .. {sizes[-1]} MB) during {command}"
+               + (" of 2000 u* bootstrap and 5000 Monte Carlo draws" if command == "run"
+                  else ""), all(s[2] for s in seen) and not leftovers(W), f"{seen}")
 
 
 def _bundle(name):
@@ -990,6 +1007,107 @@ def f_batch_killed_rerun():
            f"{leftovers(NET / 'out')}")
 
 
+def f_batch_full_disk():
+    """A batch whose out folder is a tmpfs of 700 kB (room for one site), then the space
+    freed (the tmpfs remounted larger) and the batch run again."""
+    make_net()
+    out = NET / "out"
+    out.mkdir()
+    if not _mounted(out, "-t", "tmpfs", "-o", "size=700k", "tmpfs"):
+        record("a batch into a full disk", False, "mount refused: not probed")
+        return
+    try:
+        done = fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET)
+        codes = sites_verify(out)
+        left = leftovers(out)
+        _mounted(out, "-o", "remount,size=20m")
+        rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+        after = sites_verify(out)
+    finally:
+        subprocess.run(["umount", str(out)])
+    record("a batch into a disk that fills (700 kB tmpfs), then space freed and rerun",
+           one_line(done) and all(c == 0 for c in codes) and not left
+           and rerun.returncode == 0 and after == [0] * 4,
+           f"exit {done.returncode} {errlines(done)[:1]!r:.150}, {len(codes)} sites whole, "
+           f"left {left}, rerun {rerun.returncode}, verify {after}")
+
+
+def f_batch_open_files():
+    """A batch under ``ulimit -n 24``: too few descriptors for the local Dask cluster."""
+    import resource
+    make_net()
+    done = limited({resource.RLIMIT_NOFILE: 24}, "batch", "sites.toml", "--quiet",
+                   "--workers", "2", cwd=NET)
+    written = sites_verify(NET / "out") if (NET / "out").exists() else []
+    record("a Dask batch under ulimit -n 24", (one_line(done) or done.returncode == 0)
+           and all(c == 0 for c in written) and not leftovers(NET / "out")
+           if (NET / "out").exists() else one_line(done),
+           f"exit {done.returncode}, stderr {_stderr_tail(done)}, sites {written}")
+
+
+def f_hard_linked_copy():
+    """A result copied with hard links (``cp -al``, a snapshot tool's backup), then run
+    again into the copy: the original keeps its bytes."""
+    original = fresh("hl_orig")
+    before = table_digests(original)
+    copy = W / "hl_copy"
+    shutil.rmtree(copy, ignore_errors=True)
+    subprocess.run(["cp", "-al", str(original), str(copy)], check=True)
+    done = fp("run", "seed1.toml", "--out", copy, "--quiet")
+    record("a result copied with hard links (cp -al), then run again into the copy",
+           done.returncode == 0 and table_digests(original) == before
+           and verify(original).returncode == 0 and table_digests(copy) ==
+           table_digests(W / "r1"), f"exit {done.returncode}, original intact "
+           f"{table_digests(original) == before}")
+
+
+def f_report_folder_link():
+    """The result's ``report`` a symbolic link to a folder of the user's (a thesis draft):
+    report and run again; the folder the link leads to keeps its files."""
+    folder = fresh("rlink")
+    own = W / "rlink_thesis"
+    shutil.rmtree(own, ignore_errors=True)
+    own.mkdir()
+    (own / "chapter3.tex").write_text("draft\n")
+    (folder / "report").symlink_to(own)
+    rep = fp("report", "--quiet", folder)
+    run = fp("run", "site.toml", "--out", folder, "--quiet")
+    record("the result's report folder a link to a user's folder, then report and run",
+           (one_line(rep) or rep.returncode == 0) and run.returncode == 0
+           and sorted(p.name for p in own.iterdir()) == ["chapter3.tex"]
+           and verify(folder).returncode == 0,
+           f"report {rep.returncode} {_stderr_tail(rep, 100)}, run {run.returncode}, "
+           f"user's folder {sorted(p.name for p in own.iterdir())}")
+
+
+def f_compressed_input_damaged():
+    """A gzip, bzip2 or xz input cut in half (a copy stopped) or with two bytes flipped."""
+    import bz2
+    import gzip
+    import lzma
+    bundle = _bundle("cz")
+    data = (bundle / "tower.csv").read_bytes()
+    seen = []
+    for suffix, compress in (("gz", gzip.compress), ("bz2", bz2.compress),
+                             ("xz", lzma.compress)):
+        packed = compress(data)
+        flipped = bytearray(packed)
+        flipped[len(packed) // 2] ^= 0xFF
+        flipped[len(packed) // 2 + 1] ^= 0x55
+        for how, content in (("cut", packed[: len(packed) // 2]), ("flipped", bytes(flipped))):
+            name = f"{how}.csv.{suffix}"
+            (bundle / name).write_bytes(content)
+            (bundle / f"{how}_{suffix}.toml").write_text(
+                (bundle / "site.toml").read_text().replace("tower.csv", name))
+            out = W / "cz_out"
+            shutil.rmtree(out, ignore_errors=True)
+            done = fp("run", f"{how}_{suffix}.toml", "--out", out, "--quiet", cwd=bundle)
+            seen.append((name, done.returncode, one_line(done) and name in done.stderr
+                         and not out.exists()))
+    record("a compressed input (gzip, bzip2, xz) cut in half or with bytes flipped",
+           all(s[2] for s in seen), f"{seen}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -1002,7 +1120,9 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_other_tools_folder, f_stale_lock_other_host, f_verify_damaged, f_readonly_rerun,
           f_disk_full,
           f_locale_bytes, f_future_mtimes, f_huge_line, f_quotes_path,
-          f_input_replaced_by_rename, f_batch_killed_rerun]
+          f_input_replaced_by_rename, f_batch_killed_rerun, f_batch_full_disk,
+          f_batch_open_files, f_hard_linked_copy, f_report_folder_link,
+          f_compressed_input_damaged]
 
 if __name__ == "__main__":
     wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
