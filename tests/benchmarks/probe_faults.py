@@ -231,12 +231,18 @@ def f_odd_path():
            f"exits {[s.returncode for s in steps + [again]]}, left {leftovers(parent)}")
 
 
-def f_symlinked_result():
-    folder = fresh("linked_target")
-    link = W / "linked"
+def linked(name, target):
+    """A symbolic link `name` in the scratch folder to `target`, made afresh."""
+    link = W / name
     if link.is_symlink() or link.exists():
         link.unlink()
-    link.symlink_to(folder)
+    link.symlink_to(target)
+    return link
+
+
+def f_symlinked_result():
+    folder = fresh("linked_target")
+    link = linked("linked", folder)
     steps = [verify(link), fp("report", "--quiet", link), fp("diff", link, W / "r0")]
     record("a result folder reached through a symbolic link (verify, report, diff)",
            [s.returncode for s in steps] == [0, 0, 0] and link.is_symlink()
@@ -484,18 +490,25 @@ def f_batch_stopped():
                f"{[x for x in rerun.stderr.splitlines() if x.startswith('error')][:2]}")
 
 
+def batch_with_a_site_written():
+    """A new network's batch on two Dask workers, in a session of its own, returned once
+    its first site folder is written (or after 90 s)."""
+    make_net()
+    proc = subprocess.Popen([PY, "-m", "fluxpart", "batch", "sites.toml", "--quiet",
+                             "--workers", "2"], env=ENV, cwd=NET, stdout=subprocess.PIPE,
+                            stderr=subprocess.PIPE, text=True, start_new_session=True)
+    deadline = time.time() + 90
+    while time.time() < deadline and proc.poll() is None and not (
+            (NET / "out").exists() and list((NET / "out").glob("*/manifest.json"))):
+        time.sleep(0.05)
+    return proc
+
+
 def f_batch_group_signal():
     """A scheduler's signal to every process of the job (Slurm's time limit: SIGTERM to
     all; its --signal: SIGUSR1 to all), the Dask workers included."""
     for signum in (signal.SIGTERM, signal.SIGUSR1, signal.SIGHUP):
-        make_net()
-        proc = subprocess.Popen([PY, "-m", "fluxpart", "batch", "sites.toml", "--quiet",
-                                 "--workers", "2"], env=ENV, cwd=NET, stdout=subprocess.PIPE,
-                                stderr=subprocess.PIPE, text=True, start_new_session=True)
-        deadline = time.time() + 90
-        while time.time() < deadline and proc.poll() is None and not (
-                (NET / "out").exists() and list((NET / "out").glob("*/manifest.json"))):
-            time.sleep(0.05)
+        proc = batch_with_a_site_written()
         kids = descendants(proc.pid)
         os.killpg(proc.pid, signum)
         out, err = proc.communicate(timeout=120)
@@ -698,10 +711,7 @@ def f_input_symlink():
 
 def f_out_symlink():
     target = fresh("osym_target")
-    link = W / "osym"
-    if link.is_symlink() or link.exists():
-        link.unlink()
-    link.symlink_to(target)
+    link = linked("osym", target)
     done = fp("run", "seed1.toml", "--out", link, "--quiet")
     through = (link.is_symlink() and table_digests(link) == table_digests(W / "r1")
                and verify(link).returncode == 0)
@@ -984,14 +994,7 @@ def f_input_replaced_by_rename():
 def f_batch_killed_rerun():
     """SIGKILL to every process of a Dask batch (a job killed by its scheduler's hard
     limit) with some sites finished, then the batch run again."""
-    make_net()
-    proc = subprocess.Popen([PY, "-m", "fluxpart", "batch", "sites.toml", "--quiet",
-                             "--workers", "2"], env=ENV, cwd=NET, stdout=subprocess.PIPE,
-                            stderr=subprocess.PIPE, text=True, start_new_session=True)
-    deadline = time.time() + 90
-    while time.time() < deadline and proc.poll() is None and not (
-            (NET / "out").exists() and list((NET / "out").glob("*/manifest.json"))):
-        time.sleep(0.05)
+    proc = batch_with_a_site_written()
     os.killpg(proc.pid, signal.SIGKILL)
     proc.communicate(timeout=60)
     time.sleep(1)
