@@ -171,3 +171,37 @@ def test_a_value_longer_than_the_csv_field_limit_is_refused_by_its_line(copy, ca
     line = _one_error_line(capsys)
     assert "line 51 holds a value of" in line and "tower.csv" in line
     assert not (copy / "new").exists()
+
+
+def test_a_figure_pillow_cannot_quantize_for_memory_is_a_memory_error(monkeypatch):
+    """Under ``ulimit -v`` 360 MB `report` ended with "ValueError: quantization error"
+    (Pillow's C quantizer, whose tables could not be allocated) and a 38-line traceback,
+    exit 1. It is now the MemoryError the command line says in one line; another
+    ValueError still raises."""
+    pytest.importorskip("PIL")
+    from PIL import Image
+
+    from fluxpart.figures import Drawing
+
+    class Canvas:
+        @staticmethod
+        def get_width_height():
+            return 2, 2
+
+        @staticmethod
+        def buffer_rgba():
+            return bytes(range(16))
+
+    assert Drawing.encode(Canvas()).startswith(b"\x89PNG")
+
+    def failing(message):
+        def quantize(self, *args, **kwargs):
+            raise ValueError(message)
+        return quantize
+
+    monkeypatch.setattr(Image.Image, "quantize", failing("quantization error"))
+    with pytest.raises(MemoryError, match="could not quantize"):
+        Drawing.encode(Canvas())
+    monkeypatch.setattr(Image.Image, "quantize", failing("bad number of colors"))
+    with pytest.raises(ValueError, match="bad number"):
+        Drawing.encode(Canvas())
