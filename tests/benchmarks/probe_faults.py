@@ -28,7 +28,7 @@ killed as by the OOM killer, a batch into an odd folder name.
 
 Round faults36 (machine and file-system faults; mount(8) and chattr(1) need root, and
 a container that refuses them leaves those faults unprobed): a file-size limit, too few
-file descriptors and a memory limit (setrlimit(2)); a real full disk (a small tmpfs); a
+file descriptors, a memory limit and a small stack (setrlimit(2)); a real full disk (a small tmpfs); a
 result made immutable or put on a read-only mount; the input a FIFO, a link, renamed
 over or cut mid-row while read, a 100 MB line, a damaged compressed copy; the out folder
 a link, a file, another tool's folder, on a non-UTF-8 path or a path with quotes; two
@@ -1114,6 +1114,25 @@ def f_compressed_input_damaged():
            all(s[2] for s in seen), f"{seen}")
 
 
+def f_stack_limit():
+    """A small stack (``ulimit -s`` 128 and 256 KiB; threads' stacks follow it): run and
+    verify complete with the same bytes, or stop with one line. (At 64 KiB the
+    interpreter itself crashes before any code runs: ``python -c pass`` exits 139.)"""
+    import resource
+    seen = []
+    for kib in (128, 256):
+        out = W / "stack"
+        shutil.rmtree(out, ignore_errors=True)
+        done = limited({resource.RLIMIT_STACK: kib << 10}, "run", "site.toml", "--out", out,
+                       "--quiet")
+        checked = limited({resource.RLIMIT_STACK: kib << 10}, "verify", "--quiet", out)
+        fine = ((done.returncode == 0 and table_digests(out) == table_digests(W / "r0")
+                 and checked.returncode == 0) or one_line(done))
+        seen.append((kib, done.returncode, checked.returncode, fine))
+    record("a small stack (ulimit -s 128 and 256 KiB) during run and verify",
+           all(s[3] for s in seen) and not leftovers(W), f"{seen}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -1128,7 +1147,7 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_locale_bytes, f_future_mtimes, f_huge_line, f_quotes_path,
           f_input_replaced_by_rename, f_batch_killed_rerun, f_batch_full_disk,
           f_batch_open_files, f_hard_linked_copy, f_report_folder_link,
-          f_compressed_input_damaged]
+          f_compressed_input_damaged, f_stack_limit]
 
 if __name__ == "__main__":
     wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
