@@ -18,6 +18,7 @@ import os
 import signal
 import sys
 import threading
+import traceback
 import warnings
 from pathlib import Path
 
@@ -958,6 +959,46 @@ def _tolerate_encoding(stream) -> str | None:
     return errors
 
 
+try:
+    import resource as _resource
+except ImportError:             # not POSIX
+    _resource = None
+
+#: What the dynamic loader says (glibc's dlopen (m)) when the address space left is too
+#: small to map a shared library: its segments, its zero-filled pages or its descriptor
+_UNMAPPED_LIBRARY = ("failed to map segment from shared object", "cannot map zero-fill pages",
+                     "cannot allocate memory")
+
+
+def _library_not_loaded(error: ImportError | SystemError) -> str | None:
+    """What went wrong where `error` is a library refused its memory, else None.
+
+    An ImportError in the dynamic loader's words (:data:`_UNMAPPED_LIBRARY`); a
+    SystemError "error return without exception set" raised by the import machinery (a
+    compiled module's initialisation that failed to allocate and said nothing: ulimit -v
+    300 MB in run, faults36) only under a limit on this process's address space, the one
+    cause seen for it.
+    """
+    text = str(error).lower()
+    if isinstance(error, ImportError):
+        return next((words for words in _UNMAPPED_LIBRARY if words in text), None)
+    if "without exception set" not in text or not _address_space_limited():
+        return None
+    importing = any(frame.filename.startswith("<frozen importlib")
+                    for frame in traceback.extract_tb(error.__traceback__))
+    return "a compiled module's initialisation failed without a reason" if importing else None
+
+
+def _address_space_limited() -> bool:
+    """Whether this process runs under a limit on its address space (``ulimit -v``).
+
+    :mod:`resource` is imported with this module: a compiled module itself, it cannot be
+    loaded once the limit is reached."""
+    if _resource is None:       # not POSIX
+        return False
+    return _resource.getrlimit(_resource.RLIMIT_AS)[0] != _resource.RLIM_INFINITY
+
+
 def main(argv=None) -> int:
     """Run the command line; return the exit status.
 
@@ -1038,6 +1079,25 @@ def main(argv=None) -> int:
               f"container's or a batch job's); "
               f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
               "memory", file=sys.stderr)
+        return 2
+    except (ImportError, SystemError) as error:
+        words = _library_not_loaded(error)
+        if words is None:
+            raise
+        # a compiled library (pandas', SciPy's OpenBLAS) that a memory limit leaves no room to
+        # load: a 15-line traceback, exit 1 (ulimit -v 150 to 300 MB in run and verify,
+        # faults36)
+        print(f"error: ran out of memory loading a library ({words}; a memory limit of "
+              "this process: ulimit -v, a container's or a batch job's); "
+              f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
+              "memory", file=sys.stderr)
+        if argv is None:
+            # a library loaded part-way crashed the interpreter's clean-up at exit (SIGSEGV,
+            # exit 139 after the line, ulimit -v 280 MB); the command's work is undone and
+            # its output flushed, so the process ends here, as the `fluxpart` process only
+            sys.stdout.flush()
+            sys.stderr.flush()
+            os._exit(2)
         return 2
     except RuntimeError as error:
         if not str(error).startswith("Symlink loop"):

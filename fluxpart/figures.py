@@ -443,8 +443,16 @@ class Drawing:
 
         image = Image.frombuffer("RGBA", canvas.get_width_height(), canvas.buffer_rgba(),
                                  "raw", "RGBA", 0, 1).convert("RGB")
-        palette = image.quantize(colors=256, method=Image.Quantize.FASTOCTREE,
-                                 dither=Image.Dither.NONE)
+        try:
+            palette = image.quantize(colors=256, method=Image.Quantize.FASTOCTREE,
+                                     dither=Image.Dither.NONE)
+        except ValueError as error:
+            # Pillow's C quantizer says only "quantization error" where it could not
+            # allocate its tables, the mode being checked before (ulimit -v 360 MB in
+            # report: a traceback, exit 1, faults36): the command's line about memory
+            if "quantization error" not in str(error):
+                raise
+            raise MemoryError("Pillow could not quantize a figure") from error
         buffer = io.BytesIO()
         # zlib level 3: 40 % of the CPU of level 6 (33 vs 83 ms for the ten figures of a
         # demo year) for files 17 % larger (449 vs 383 KiB); level 9 took 532 ms, 351 KiB

@@ -92,11 +92,62 @@ def _load_scipy_blas() -> None:
     libraries = sorted((Path(spec.origin).parent.parent / "scipy.libs").glob("libscipy_openblas*.so*"))
     try:
         for library in libraries:
+            if not _openblas_loaded(library):
+                require_address_space(library.stat().st_size + 2 * OPENBLAS_BUFFER,
+                                      f"to load {library.name}")
             ctypes.CDLL(str(library))
     except OSError:
         libraries = []
     if not libraries:
         import scipy.linalg  # noqa: F401
+
+
+#: Bytes of one work buffer of OpenBLAS on x86-64 (``BUFFER_SIZE``, 32 MiB, OpenBLAS's
+#: common_x86_64.h (m); the 33 554 432-byte mmap seen under strace), which it maps as it
+#: is loaded and at its first product
+OPENBLAS_BUFFER = 32 << 20
+
+
+def _address_headroom() -> int | None:
+    """Bytes this process may still map under its address-space limit (``ulimit -v``),
+    or None where there is no limit or it cannot be told (not Linux)."""
+    try:
+        import os
+        import resource
+
+        soft = resource.getrlimit(resource.RLIMIT_AS)[0]
+        if soft == resource.RLIM_INFINITY:
+            return None
+        with open("/proc/self/statm") as statm:
+            pages = int(statm.read().split()[0])
+        return soft - pages * os.sysconf("SC_PAGE_SIZE")
+    except (ImportError, OSError, ValueError, IndexError):
+        return None
+
+
+def require_address_space(needed: int, purpose: str) -> None:
+    """Raise :class:`MemoryError` where a memory limit leaves less than `needed` bytes.
+
+    OpenBLAS, loaded or first used with no room for its work buffer, neither fails nor
+    says so: it retries the buffer's mmap without end in its start-up (``gotoblas_init``
+    → ``blas_memory_alloc``: `run` hung under ``ulimit -v`` 160 MB with the folder
+    locked, where SIGTERM cannot reach it, faults36), or prints "Memory allocation still
+    failed after 10 retries, giving up" and ends the process with exit 1. Asked first,
+    the command stops with its one line about memory instead.
+    """
+    headroom = _address_headroom()
+    if headroom is not None and headroom < needed:
+        raise MemoryError(f"{needed >> 20} MiB {purpose}, {max(headroom, 0) >> 20} MiB left "
+                          "under the address-space limit")
+
+
+def _openblas_loaded(library: Path) -> bool:
+    """Whether the shared library `library` is mapped into this process already."""
+    try:
+        with open("/proc/self/maps") as maps:
+            return any(line.rstrip().endswith(library.name) for line in maps)
+    except OSError:
+        return False
 
 
 _RESERVE_SIDE = 256     # a product of two 256 x 256 matrices: above OpenBLAS's small-matrix
@@ -145,6 +196,7 @@ def reserve_numpy_blas() -> None:
     """
     import numpy as np
 
+    require_address_space(2 * OPENBLAS_BUFFER, "for NumPy's OpenBLAS work buffers")
     a = np.ones((_RESERVE_SIDE, _RESERVE_SIDE))
     np.matmul(a, a, out=np.empty_like(a))      # NumPy's OpenBLAS (cblas_dgemm)
 

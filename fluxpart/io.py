@@ -85,6 +85,7 @@ from .errors import (
 from .fixed_width import delimited, fused_header_names, run_together_field
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
+from .overlong_values import refuse_overlong_value
 from .site import Site
 from .split_factor import UNIT_FIT, jump_factor, unit_of_factor
 from .stamp_places import (
@@ -3652,6 +3653,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     text, used_encoding = _decode(path, encoding, warnings)
     if column_widths:                         # a fixed-width file (layouts35)
         text = delimited(path, text, column_widths, rows_before_header)
+    refuse_overlong_value(path, text, delimiter, _WHITESPACE)
     rows_before_header += _separator_line(text, delimiter, rows_before_header, path)
     text, rows_before_header, rows_after_header, borrowed = _later_file_layout(
         path, text, first_header, delimiter, rows_before_header, rows_after_header,

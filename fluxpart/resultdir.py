@@ -528,9 +528,12 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
                 "where nothing can be written or removed")
     protected = _write_protected(directory)
     if protected is not None:
+        attribute = _locked_attribute(protected)
+        remedy = (f"clear its {attribute} attribute (lsattr -d shows it; chattr -R -i -a, "
+                  "which takes root)" if attribute else "make it writable (chmod -R u+w)")
         return (f"is write-protected ({str(protected)!r} cannot be changed: kept read-only on "
                 "purpose?); the new one would be swapped in while the old one could not be "
-                "removed and would stay hidden beside it: make it writable (chmod -R u+w)")
+                f"removed and would stay hidden beside it: {remedy}")
     return other_site_reason(directory, site_name)
 
 
@@ -704,15 +707,45 @@ def _read_only_mount(directory: Path) -> bool:
 
 def _write_protected(directory: Path) -> Path | None:
     """The first folder in the tree of `directory` (itself included) whose entries this
-    process may not remove (no write or search permission), or None.
+    process may not remove (no write or search permission, or an immutable or append-only
+    attribute), or None.
 
     Removing a file takes write permission on the folder that lists it, not on the file
     (POSIX ``unlink``), so only folders are asked.
     """
     for folder, _, _ in os.walk(directory):
-        if not os.access(folder, os.W_OK | os.X_OK):
-            return Path(folder)
+        if not os.access(folder, os.W_OK | os.X_OK) or _locked_attribute(Path(folder)):
+            return Path(folder)     # an append-only folder passes access(2) (faults36)
     return None
+
+
+#: Linux inode flags (ioctl_iflags(2) (m)): ``FS_IOC_GETFLAGS`` and the two flags under
+#: which no entry of a folder can be removed, not even by root, whatever its mode says
+_GETFLAGS = 0x80086601
+_LOCKING_FLAGS = ((0x00000010, "immutable"), (0x00000020, "append-only"))
+
+
+def _locked_attribute(folder: Path) -> str | None:
+    """"immutable" or "append-only" where such an inode attribute of `folder` (``chattr
+    +i`` / ``+a``, Linux) keeps its entries, or None (also where the flags cannot be read).
+
+    No mode lets anyone remove an entry then, root included (ioctl_iflags(2) (m)): the
+    write-protected message asked for ``chmod -R u+w``, which changes nothing there
+    (faults36).
+    """
+    try:
+        import fcntl
+        import struct
+        descriptor = os.open(folder, os.O_RDONLY | getattr(os, "O_DIRECTORY", 0))
+    except (ImportError, OSError):
+        return None
+    try:
+        flags = struct.unpack("l", fcntl.ioctl(descriptor, _GETFLAGS, struct.pack("l", 0)))[0]
+    except OSError:                         # a file system without inode flags (tmpfs, NFS)
+        return None
+    finally:
+        os.close(descriptor)
+    return next((name for bit, name in _LOCKING_FLAGS if flags & bit), None)
 
 
 # --------------------------------------------------------------------------- writing

@@ -2,7 +2,7 @@
 
 Run by hand from the repository root: ``.venv/bin/python tests/benchmarks/probe_faults.py``
 (``--dir DIR`` for the scratch folder, default a new temporary one; names of fault
-functions, e.g. ``f_signals f_injected``, to run only those). Round faults35.
+functions, e.g. ``f_signals f_injected``, to run only those). Rounds faults35 and faults36.
 
 Each fault runs the command line (``python -m fluxpart`` of this tree, in a fresh
 process) on a 30-day bundle cut from the invented Quillmoor example
@@ -25,6 +25,17 @@ the result moved while report writes; verify of a result of another CPU and Pyth
 patch; the input rewritten while read; a Dask batch stopped by SIGTERM or SIGUSR1 with
 sites finished, the same signals and SIGHUP to every process of the job, a worker
 killed as by the OOM killer, a batch into an odd folder name.
+
+Round faults36 (machine and file-system faults; mount(8) and chattr(1) need root, and
+a container that refuses them leaves those faults unprobed): a file-size limit, too few
+file descriptors, a memory limit and a small stack (setrlimit(2)); a real full disk (a small tmpfs); a
+result made immutable or put on a read-only mount; the input a FIFO, a link, renamed
+over or cut mid-row while read, a 100 MB line, a damaged compressed copy; the out folder
+a link, a file, another tool's folder, on a non-UTF-8 path or a path with quotes; two
+runs into one folder; a stale lock of another host; damaged tables and manifests given
+to verify; a decimal-comma locale and an unknown TZ (bytes); files dated 2100; hard-linked
+copies; a report folder linked to the user's; a batch killed with -9, on a full disk and
+under ulimit -n.
 """
 import hashlib
 import os
@@ -220,12 +231,18 @@ def f_odd_path():
            f"exits {[s.returncode for s in steps + [again]]}, left {leftovers(parent)}")
 
 
-def f_symlinked_result():
-    folder = fresh("linked_target")
-    link = W / "linked"
+def linked(name, target):
+    """A symbolic link `name` in the scratch folder to `target`, made afresh."""
+    link = W / name
     if link.is_symlink() or link.exists():
         link.unlink()
-    link.symlink_to(folder)
+    link.symlink_to(target)
+    return link
+
+
+def f_symlinked_result():
+    folder = fresh("linked_target")
+    link = linked("linked", folder)
     steps = [verify(link), fp("report", "--quiet", link), fp("diff", link, W / "r0")]
     record("a result folder reached through a symbolic link (verify, report, diff)",
            [s.returncode for s in steps] == [0, 0, 0] and link.is_symlink()
@@ -473,18 +490,25 @@ def f_batch_stopped():
                f"{[x for x in rerun.stderr.splitlines() if x.startswith('error')][:2]}")
 
 
+def batch_with_a_site_written():
+    """A new network's batch on two Dask workers, in a session of its own, returned once
+    its first site folder is written (or after 90 s)."""
+    make_net()
+    proc = subprocess.Popen([PY, "-m", "fluxpart", "batch", "sites.toml", "--quiet",
+                             "--workers", "2"], env=ENV, cwd=NET, stdout=subprocess.PIPE,
+                            stderr=subprocess.PIPE, text=True, start_new_session=True)
+    deadline = time.time() + 90
+    while time.time() < deadline and proc.poll() is None and not (
+            (NET / "out").exists() and list((NET / "out").glob("*/manifest.json"))):
+        time.sleep(0.05)
+    return proc
+
+
 def f_batch_group_signal():
     """A scheduler's signal to every process of the job (Slurm's time limit: SIGTERM to
     all; its --signal: SIGUSR1 to all), the Dask workers included."""
     for signum in (signal.SIGTERM, signal.SIGUSR1, signal.SIGHUP):
-        make_net()
-        proc = subprocess.Popen([PY, "-m", "fluxpart", "batch", "sites.toml", "--quiet",
-                                 "--workers", "2"], env=ENV, cwd=NET, stdout=subprocess.PIPE,
-                                stderr=subprocess.PIPE, text=True, start_new_session=True)
-        deadline = time.time() + 90
-        while time.time() < deadline and proc.poll() is None and not (
-                (NET / "out").exists() and list((NET / "out").glob("*/manifest.json"))):
-            time.sleep(0.05)
+        proc = batch_with_a_site_written()
         kids = descendants(proc.pid)
         os.killpg(proc.pid, signum)
         out, err = proc.communicate(timeout=120)
@@ -553,12 +577,577 @@ def f_batch_odd_out():
            and codes == [0] * 4, f"exit {done.returncode}, verify {codes}")
 
 
+# ------------------------------------------------------------------ round faults36
+def limited(limits, *args, env=None, cwd=None, user=None, timeout=300):
+    """:func:`fp` with resource limits ``{resource.RLIMIT_X: soft}`` (and, as root, another
+    user id) set in the child before it starts Python."""
+    import resource
+
+    def apply():
+        for which, soft in limits.items():
+            resource.setrlimit(which, (soft, resource.getrlimit(which)[1]))
+        if user is not None:
+            os.setgid(user)
+            os.setuid(user)
+    return subprocess.run([PY, "-m", "fluxpart", *map(str, args)], env=env or ENV,
+                          cwd=cwd or W / "b", capture_output=True, text=True,
+                          timeout=timeout, preexec_fn=apply)
+
+
+def _intact(folder, before):
+    return table_digests(folder) == before and verify(folder).returncode == 0
+
+
+def _stderr_tail(done, width=150):
+    return repr(done.stderr.strip()[-width:])
+
+
+def f_file_size_limit():
+    """``ulimit -f`` (RLIMIT_FSIZE; Python ignores SIGXFSZ, so a write past it fails with
+    EFBIG, setrlimit(2) (m)): run replacing a result, report and a CSV export."""
+    import resource
+    for command in ("run", "report", "export"):
+        folder = fresh(f"fsz_{command}")
+        shutil.rmtree(W / "fsz_csv", ignore_errors=True)
+        before = table_digests(folder)
+        args = {"run": ["run", "seed1.toml", "--out", folder, "--quiet"],
+                "report": ["report", "--quiet", folder],
+                "export": ["export", "--csv", W / "fsz_csv", folder]}[command]
+        done = limited({resource.RLIMIT_FSIZE: 60_000}, *args)
+        record(f"a file-size limit of 60 kB (ulimit -f) during {command}",
+               one_line(done) and _intact(folder, before) and not leftovers(W)
+               and not leftovers(folder) and not (W / "fsz_csv").exists()
+               and not (folder / "report").exists(),
+               f"exit {done.returncode}, stderr {_stderr_tail(done)}, left "
+               f"{leftovers(W) + leftovers(folder)}")
+
+
+def f_open_file_limit():
+    """``ulimit -n`` from 8 to 64 during a run that replaces a result: each either
+    completes with the same tables or stops with one line, the old result whole."""
+    import resource
+    seen = []
+    for limit in (8, 16, 24, 32, 48, 64):
+        folder = fresh("nofile")
+        before = table_digests(folder)
+        done = limited({resource.RLIMIT_NOFILE: limit}, "run", "seed1.toml", "--out", folder,
+                       "--quiet")
+        fine = ((done.returncode == 0 and table_digests(folder) == table_digests(W / "r1"))
+                or (one_line(done) and _intact(folder, before)))
+        seen.append((limit, done.returncode, fine, done.stderr.strip()[-90:]))
+    record("too few file descriptors (ulimit -n 8 .. 64) during run",
+           all(s[2] for s in seen) and not leftovers(W), f"{seen}")
+
+
+def _limited_or_hung(limits, *args, timeout=120):
+    try:
+        return limited(limits, *args, timeout=timeout)
+    except subprocess.TimeoutExpired:
+        return subprocess.CompletedProcess(args, "hung", "", f"(still running after {timeout} s)")
+
+
+def f_memory_limit():
+    """An address-space limit (``ulimit -v``, RLIMIT_AS) met at several points of a run
+    with 2000 u* bootstrap and 5000 Monte Carlo draws (from loading the libraries to the
+    Monte Carlo), and of verify and report."""
+    import resource
+    text = (W / "b" / "site.toml").read_text()
+    (W / "b" / "heavy.toml").write_text(text.replace(
+        'ustar_method = "fixed"\nustar_threshold = 0.2\n', "ustar_bootstrap_draws = 2000\n")
+        .replace("random_error_draws = 20", "random_error_draws = 5000"))
+    for command, sizes in (("run", (100, 160, 200, 250, 300, 350, 400, 500)),
+                           ("verify", (100, 160, 200, 300)), ("report", (160, 300, 360))):
+        seen = []
+        for megabytes in sizes:
+            folder = fresh("mem")
+            before = table_digests(folder)
+            args = {"run": ["run", "heavy.toml", "--out", folder, "--quiet"],
+                    "verify": ["verify", "--quiet", folder],
+                    "report": ["report", "--quiet", folder]}[command]
+            done = _limited_or_hung({resource.RLIMIT_AS: megabytes << 20}, *args)
+            fine = (done.returncode == 0 and verify(folder).returncode == 0) or (
+                one_line(done) and _intact(folder, before) and not leftovers(folder))
+            seen.append((megabytes, done.returncode, fine, done.stderr.strip()[-50:]))
+        record(f"a memory limit (ulimit -v {sizes[0]} .. {sizes[-1]} MB) during {command}"
+               + (" of 2000 u* bootstrap and 5000 Monte Carlo draws" if command == "run"
+                  else ""), all(s[2] for s in seen) and not leftovers(W), f"{seen}")
+
+
+def _bundle(name):
+    bundle = W / name
+    shutil.rmtree(bundle, ignore_errors=True)
+    shutil.copytree(W / "b", bundle)
+    return bundle
+
+
+def f_input_fifo():
+    bundle = _bundle("fifo")
+    (bundle / "tower.csv").unlink()
+    os.mkfifo(bundle / "tower.csv")
+    out = W / "fifo_out"
+    shutil.rmtree(out, ignore_errors=True)
+    try:
+        done = fp("run", "site.toml", "--out", out, "--quiet", cwd=bundle, timeout=60)
+    except subprocess.TimeoutExpired:
+        done = subprocess.CompletedProcess([], "hang", "", "(hung 60 s)")
+    record("the input replaced by a named pipe (FIFO) with no writer",
+           one_line(done) and "tower.csv" in done.stderr and not out.exists(),
+           f"exit {done.returncode}, stderr {_stderr_tail(done)}")
+
+
+def f_input_symlink():
+    bundle = _bundle("isym")
+    real = W / "isym_data" / "tower.csv"
+    real.parent.mkdir(exist_ok=True)
+    shutil.move(bundle / "tower.csv", real)
+    (bundle / "tower.csv").symlink_to(real)
+    out = W / "isym_out"
+    shutil.rmtree(out, ignore_errors=True)
+    done = fp("run", "site.toml", "--out", out, "--quiet", cwd=bundle)
+    same = table_digests(out) == table_digests(W / "r0") if out.exists() else False
+    record("the input file replaced by a symbolic link to it", done.returncode == 0 and same
+           and verify(out).returncode == 0, f"exit {done.returncode}, identical {same}")
+
+
+def f_out_symlink():
+    target = fresh("osym_target")
+    link = linked("osym", target)
+    done = fp("run", "seed1.toml", "--out", link, "--quiet")
+    through = (link.is_symlink() and table_digests(link) == table_digests(W / "r1")
+               and verify(link).returncode == 0)
+    refused = one_line(done) and link.is_symlink() and table_digests(target) == \
+        table_digests(W / "r0")
+    record("run --out a symbolic link to an earlier result", (done.returncode == 0 and through)
+           or refused, f"exit {done.returncode}, link kept {link.is_symlink()}, "
+           f"written through {through}, stderr {_stderr_tail(done)}, left {leftovers(W)}")
+
+
+def f_out_is_file():
+    out = W / "ofile"
+    shutil.rmtree(out, ignore_errors=True)
+    out.write_text("a lab notebook\n")
+    done = fp("run", "site.toml", "--out", out, "--quiet")
+    record("run --out an existing regular file", one_line(done) and out.read_text() ==
+           "a lab notebook\n" and not leftovers(W), f"exit {done.returncode}, stderr "
+           f"{_stderr_tail(done)}")
+
+
+def f_out_not_utf8():
+    parent = W / os.fsdecode(b"Ergebnis-\xff\xfe-latin1-\xe9t\xe9")
+    shutil.rmtree(parent, ignore_errors=True)
+    parent.mkdir()
+    out = parent / os.fsdecode(b"out-\xe4")
+    steps = [fp("run", "site.toml", "--out", out, "--quiet"), verify(out),
+             fp("report", "--quiet", out), fp("export", "--csv", parent / "csv", out),
+             fp("run", "site.toml", "--out", out, "--quiet")]
+    same = table_digests(out) == table_digests(W / "r0") if out.exists() else False
+    record("a result folder on a path whose bytes are not UTF-8 (run, verify, report, "
+           "export, run again)", all(s.returncode == 0 for s in steps) and same
+           and not leftovers(parent), f"exits {[s.returncode for s in steps]}, identical "
+           f"{same}, {[e for s in steps for e in errlines(s)][:1]}")
+
+
+def f_same_folder_twice():
+    out = W / "same"
+    shutil.rmtree(out, ignore_errors=True)
+    procs = [start("run", "site.toml", "--out", out, "--quiet"),
+             start("run", "seed1.toml", "--out", out, "--quiet")]
+    done = [p.communicate(timeout=300) for p in procs]
+    codes = [p.returncode for p in procs]
+    digests = table_digests(out)
+    whole = digests in (table_digests(W / "r0"), table_digests(W / "r1"))
+    record("two runs (seeds 0 and 1) at once into the same folder", codes == [0, 0] and whole
+           and verify(out).returncode == 0 and not leftovers(W),
+           f"exits {codes}, one run's tables whole {whole}, stderr {[d[1][-80:] for d in done]}")
+
+
+def f_other_tools_folder():
+    out = W / "foreign"
+    shutil.rmtree(out, ignore_errors=True)
+    out.mkdir()
+    (out / "tower_2021.nc").write_bytes(b"CDF\x01" + bytes(100))
+    (out / "notes.txt").write_text("field notes\n")
+    (out / "summary.parquet").write_bytes((W / "r0" / "annual.parquet").read_bytes())
+    done = fp("run", "site.toml", "--out", out, "--quiet")
+    names = sorted(p.name for p in out.iterdir())
+    record("run into a folder holding another tool's files (a NetCDF, notes, a Parquet)",
+           one_line(done) and names == ["notes.txt", "summary.parquet", "tower_2021.nc"]
+           and not leftovers(W), f"exit {done.returncode}, stderr {_stderr_tail(done)}, "
+           f"folder {names}")
+
+
+def f_stale_lock_other_host():
+    folder = fresh("slock")
+    lock = W / ".slock.lock"
+    lock.write_text("pid 48211 on tower-gateway-02\n")
+    old = time.time() - 40 * 86400
+    os.utime(lock, (old, old))
+    done = fp("run", "seed1.toml", "--out", folder, "--quiet", timeout=120)
+    record("a stale lock file left by a run killed on another host", done.returncode == 0
+           and table_digests(folder) == table_digests(W / "r1") and not leftovers(W),
+           f"exit {done.returncode}, stderr {_stderr_tail(done)}, lock left {lock.exists()}")
+
+
+def f_verify_damaged():
+    cases = []
+    folder = fresh("vd_trunc")
+    data = (folder / "daily.parquet").read_bytes()
+    (folder / "daily.parquet").write_bytes(data[: len(data) // 2])
+    cases.append(("a Parquet table truncated to half", folder, "daily.parquet"))
+    folder = fresh("vd_json")
+    data = (folder / "manifest.json").read_bytes()
+    (folder / "manifest.json").write_bytes(data[: len(data) * 2 // 3])
+    cases.append(("a manifest truncated (invalid JSON)", folder, "manifest.json"))
+    folder = fresh("vd_edit")
+    text = (folder / "manifest.json").read_text()
+    (folder / "manifest.json").write_text(text.replace('"seed": 0', '"seed": 7', 1))
+    cases.append(("a manifest hand-edited (seed 0 -> 7, not resealed)", folder, "seed"))
+    folder = fresh("vd_zero")
+    (folder / "annual.parquet").write_bytes(b"")
+    cases.append(("a Parquet table emptied to 0 bytes", folder, "annual.parquet"))
+    for label, folder, named in cases:
+        done = fp("verify", folder)
+        tb = "Traceback" in done.stderr
+        record(f"verify of {label}", done.returncode in (1, 2) and not tb
+               and named in done.stdout + done.stderr and (done.returncode == 1 or
+                                                           one_line(done)),
+               f"exit {done.returncode}, names it {named in done.stdout + done.stderr}, "
+               f"traceback {tb}, {(done.stdout + done.stderr).strip().splitlines()[:2]!r:.200}")
+
+
+def _mounted(target, *options):
+    """Mount (``mount`` as root; a container may refuse) `options` on `target`; True when
+    done."""
+    return subprocess.run(["mount", *options, str(target)], capture_output=True).returncode == 0
+
+
+def f_readonly_rerun():
+    """A result made read-only, then run and report again: the folder and its files
+    immutable (``chattr +i``: permissions do not stop root, who runs this probe; EPERM),
+    and the result's parent on a read-only bind mount (EROFS)."""
+    for how in ("immutable (chattr +i)", "on a read-only mount"):
+        parent = W / "ro_parent"
+        shutil.rmtree(parent, ignore_errors=True)
+        parent.mkdir()
+        folder = parent / "ro"
+        shutil.copytree(W / "r0", folder)
+        before = table_digests(folder)
+        paths = [folder, *folder.iterdir()]
+        if how.startswith("immutable"):
+            locked = subprocess.run(["chattr", "+i", *map(str, paths)]).returncode == 0
+        else:
+            locked = _mounted(parent, "--bind", str(parent)) and _mounted(
+                parent, "-o", "remount,bind,ro")
+        try:
+            done = fp("run", "seed1.toml", "--out", folder, "--quiet")
+            rep = fp("report", "--quiet", folder)
+        finally:
+            if how.startswith("immutable"):
+                subprocess.run(["chattr", "-i", *map(str, paths)])
+            else:
+                subprocess.run(["umount", str(parent)])
+        record(f"a result folder {how}, then run and report again",
+               locked and one_line(done) and one_line(rep) and table_digests(folder) == before
+               and ("chattr" in done.stderr and "chmod" not in done.stderr
+                    if how.startswith("immutable") else "read-only" in done.stderr)
+               and not leftovers(parent)
+               and verify(folder, "--input", W / "b" / "tower.csv").returncode == 0,
+               f"locked {locked}, run {done.returncode} {_stderr_tail(done, 110)}, report "
+               f"{rep.returncode} {_stderr_tail(rep, 110)}, left {leftovers(parent)}")
+
+
+def f_disk_full():
+    """A real full disk (ENOSPC): the result's parent a tmpfs of 300 kB, too small for
+    the tables (run) and for the report (report), and the CSV export's."""
+    parent = W / "full"
+    shutil.rmtree(parent, ignore_errors=True)
+    parent.mkdir()
+    if not _mounted(parent, "-t", "tmpfs", "-o", "size=300k", "tmpfs"):
+        record("a full disk (tmpfs)", False, "mount refused: not probed")
+        return
+    try:
+        small = parent / "small"
+        shutil.copytree(W / "r0", small, ignore=shutil.ignore_patterns(
+            "timeseries.parquet", "annual.parquet"))      # a result that fits, as if
+        before = table_digests(small)
+        cases = {"run": ["run", "site.toml", "--out", parent / "new", "--quiet"],
+                 "run replacing a result": ["run", "site.toml", "--out", small, "--quiet"],
+                 "export": ["export", "--csv", parent / "csv", W / "r0"]}
+        for label, args in cases.items():
+            done = fp(*args)
+            record(f"a full disk (ENOSPC, a 300 kB tmpfs) during {label}", one_line(done)
+                   and table_digests(small) == before and not (parent / "new").exists()
+                   and not (parent / "csv").exists() and not leftovers(parent),
+                   f"exit {done.returncode}, stderr {_stderr_tail(done)}, left "
+                   f"{leftovers(parent)}, free {shutil.disk_usage(parent).free}")
+    finally:
+        subprocess.run(["umount", str(parent)])
+
+
+def f_locale_bytes():
+    """A locale writing decimal commas (de_DE.UTF-8 compiled with localedef into a
+    scratch LOCPATH), and a time zone name the system does not know: tables and the CSV
+    export byte-identical to those under the C locale."""
+    loc = W / "locales"
+    if not (loc / "de_DE.UTF-8").exists():
+        loc.mkdir(exist_ok=True)
+        subprocess.run(["localedef", "-i", "de_DE", "-f", "UTF-8", str(loc / "de_DE.UTF-8")],
+                       capture_output=True)
+    base_csv = W / "loc_csv_c"
+    shutil.rmtree(base_csv, ignore_errors=True)
+    fp("export", "--csv", base_csv, W / "r0")
+    cases = {"LC_ALL=de_DE.UTF-8 (decimal comma)": dict(LOCPATH=str(loc),
+                                                        LC_ALL="de_DE.UTF-8"),
+             "TZ=Mars/Olympus_Mons (a zone name the system does not know)":
+                 dict(TZ="Mars/Olympus_Mons")}
+    for number, (label, extra) in enumerate(cases.items()):
+        env = dict(ENV, **extra)
+        out, csv = W / f"loc{number}", W / f"loc{number}_csv"
+        shutil.rmtree(out, ignore_errors=True)
+        shutil.rmtree(csv, ignore_errors=True)
+        done = fp("run", "site.toml", "--out", out, "--quiet", env=env)
+        exp = fp("export", "--csv", csv, out, env=env)
+        same = table_digests(out) == table_digests(W / "r0")
+        csv_same = ({p.name: p.read_bytes() for p in csv.glob("*")} ==
+                    {p.name: p.read_bytes() for p in base_csv.glob("*")}) if csv.exists() \
+            else False
+        record(f"run and CSV export under {label}: byte-identical", done.returncode == 0
+               and exp.returncode == 0 and same and csv_same,
+               f"exits {done.returncode}/{exp.returncode}, tables {same}, CSV {csv_same}")
+
+
+def f_future_mtimes():
+    """The clock set years ahead then back: the input, the config and every file of the
+    result dated 2100; run again, report and verify."""
+    bundle = _bundle("future")
+    folder = fresh("future_out")
+    ahead = 4102444800          # 2100-01-01 UTC
+    for path in [bundle / "tower.csv", bundle / "site.toml", folder, *folder.iterdir()]:
+        os.utime(path, (ahead, ahead))
+    steps = [verify(folder), fp("report", "--quiet", folder, cwd=bundle),
+             fp("run", "site.toml", "--out", folder, "--quiet", cwd=bundle)]
+    record("input, config and result dated 2100 (a clock set ahead), then verify, report, run",
+           all(s.returncode == 0 for s in steps) and table_digests(folder) ==
+           table_digests(W / "r0") and not leftovers(W),
+           f"exits {[s.returncode for s in steps]}, {[e for s in steps for e in errlines(s)]}")
+
+
+def f_huge_line():
+    """A line of 100 MB without a newline in the input (a logger's buffer dumped)."""
+    import resource
+    bundle = _bundle("huge")
+    lines = (bundle / "tower.csv").read_bytes().splitlines(keepends=True)
+    with open(bundle / "tower.csv", "wb") as handle:
+        handle.writelines(lines[:200])
+        handle.write(b"9" * (100 << 20))
+        handle.write(b"\n")
+        handle.writelines(lines[200:])
+    out = W / "huge_out"
+    shutil.rmtree(out, ignore_errors=True)
+    began = time.time()
+    done = limited({resource.RLIMIT_AS: 2500 << 20}, "run", "site.toml", "--out", out,
+                   "--quiet", cwd=bundle)
+    took = time.time() - began
+    record("a 100 MB line without a newline in the input", one_line(done) and not out.exists()
+           and took < 60, f"exit {done.returncode} in {took:.0f} s, stderr {_stderr_tail(done)}")
+
+
+def f_quotes_path():
+    parent = W / """it's "quoted" $HOME `x` ; & a\\b"""
+    shutil.rmtree(parent, ignore_errors=True)
+    shutil.copytree(W / "b", parent)
+    (parent / "site's \"cfg\".toml").write_text((W / "b" / "site.toml").read_text())
+    out = parent / """out 'a' "b" $(x)"""
+    twin = parent / "twin \"t\""
+    shutil.rmtree(twin, ignore_errors=True)
+    steps = [fp("run", "site's \"cfg\".toml", "--out", out, "--quiet", cwd=parent),
+             fp("run", "site's \"cfg\".toml", "--out", twin, "--quiet", cwd=parent),
+             verify(out), fp("report", "--quiet", out), fp("diff", out, twin),
+             fp("export", "--csv", parent / "csv 'q'", out)]
+    record("config, input and result on paths with spaces, quotes, $, backticks, ; and \\",
+           all(s.returncode == 0 for s in steps) and table_digests(out) ==
+           table_digests(W / "r0") and not leftovers(parent),
+           f"exits {[s.returncode for s in steps]}, {[e for s in steps for e in errlines(s)]}")
+
+
+def f_input_replaced_by_rename():
+    """The input replaced by a rename (a sync tool's new copy moved over it) and one cut
+    mid-row (truncate), each while run reads it."""
+    for how in ("renamed", "cut mid-row"):
+        bundle = _bundle("rn")
+        out = W / "rn_out"
+        shutil.rmtree(out, ignore_errors=True)
+        data = (bundle / "tower.csv").read_bytes()
+        proc = start("run", "site.toml", "--out", out, "--quiet", cwd=bundle)
+        time.sleep(0.25)
+        if how == "renamed":
+            (bundle / "new.csv").write_bytes(data.replace(b",", b";"))
+            os.replace(bundle / "new.csv", bundle / "tower.csv")
+        else:
+            os.truncate(bundle / "tower.csv", len(data) // 2 + 7)
+        _, err = proc.communicate(timeout=120)
+        done = subprocess.CompletedProcess([], proc.returncode, "", err)
+        fine = (one_line(done) and not out.exists()) or (
+            proc.returncode == 0 and verify(out).returncode in (0, 1) and
+            table_digests(out) == table_digests(W / "r0"))
+        record(f"the input {how} while run reads it", fine and not leftovers(W),
+               f"exit {proc.returncode}, stderr {err.strip()[-120:]!r}")
+
+
+def f_batch_killed_rerun():
+    """SIGKILL to every process of a Dask batch (a job killed by its scheduler's hard
+    limit) with some sites finished, then the batch run again."""
+    proc = batch_with_a_site_written()
+    os.killpg(proc.pid, signal.SIGKILL)
+    proc.communicate(timeout=60)
+    time.sleep(1)
+    rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+    codes = sites_verify(NET / "out")
+    again = {p.name: table_digests(p) for p in sorted((NET / "out").iterdir()) if p.is_dir()}
+    clean = fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET)
+    record("kill -9 of a whole Dask batch, then the batch run again", rerun.returncode == 0
+           and codes == [0] * 4 and not leftovers(NET / "out") and clean.returncode == 0
+           and again == {p.name: table_digests(p) for p in sorted((NET / "out").iterdir())
+                         if p.is_dir()},
+           f"rerun {rerun.returncode} {errlines(rerun)[:1]}, verify {codes}, left "
+           f"{leftovers(NET / 'out')}")
+
+
+def f_batch_full_disk():
+    """A batch whose out folder is a tmpfs of 700 kB (room for one site), then the space
+    freed (the tmpfs remounted larger) and the batch run again."""
+    make_net()
+    out = NET / "out"
+    out.mkdir()
+    if not _mounted(out, "-t", "tmpfs", "-o", "size=700k", "tmpfs"):
+        record("a batch into a full disk", False, "mount refused: not probed")
+        return
+    try:
+        done = fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET)
+        codes = sites_verify(out)
+        left = leftovers(out)
+        _mounted(out, "-o", "remount,size=20m")
+        rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+        after = sites_verify(out)
+    finally:
+        subprocess.run(["umount", str(out)])
+    record("a batch into a disk that fills (700 kB tmpfs), then space freed and rerun",
+           one_line(done) and all(c == 0 for c in codes) and not left
+           and rerun.returncode == 0 and after == [0] * 4,
+           f"exit {done.returncode} {errlines(done)[:1]!r:.150}, {len(codes)} sites whole, "
+           f"left {left}, rerun {rerun.returncode}, verify {after}")
+
+
+def f_batch_open_files():
+    """A batch under ``ulimit -n 24``: too few descriptors for the local Dask cluster."""
+    import resource
+    make_net()
+    done = limited({resource.RLIMIT_NOFILE: 24}, "batch", "sites.toml", "--quiet",
+                   "--workers", "2", cwd=NET)
+    written = sites_verify(NET / "out") if (NET / "out").exists() else []
+    record("a Dask batch under ulimit -n 24", (one_line(done) or done.returncode == 0)
+           and all(c == 0 for c in written) and not leftovers(NET / "out")
+           if (NET / "out").exists() else one_line(done),
+           f"exit {done.returncode}, stderr {_stderr_tail(done)}, sites {written}")
+
+
+def f_hard_linked_copy():
+    """A result copied with hard links (``cp -al``, a snapshot tool's backup), then run
+    again into the copy: the original keeps its bytes."""
+    original = fresh("hl_orig")
+    before = table_digests(original)
+    copy = W / "hl_copy"
+    shutil.rmtree(copy, ignore_errors=True)
+    subprocess.run(["cp", "-al", str(original), str(copy)], check=True)
+    done = fp("run", "seed1.toml", "--out", copy, "--quiet")
+    record("a result copied with hard links (cp -al), then run again into the copy",
+           done.returncode == 0 and table_digests(original) == before
+           and verify(original).returncode == 0 and table_digests(copy) ==
+           table_digests(W / "r1"), f"exit {done.returncode}, original intact "
+           f"{table_digests(original) == before}")
+
+
+def f_report_folder_link():
+    """The result's ``report`` a symbolic link to a folder of the user's (a thesis draft):
+    report and run again; the folder the link leads to keeps its files."""
+    folder = fresh("rlink")
+    own = W / "rlink_thesis"
+    shutil.rmtree(own, ignore_errors=True)
+    own.mkdir()
+    (own / "chapter3.tex").write_text("draft\n")
+    (folder / "report").symlink_to(own)
+    rep = fp("report", "--quiet", folder)
+    run = fp("run", "site.toml", "--out", folder, "--quiet")
+    record("the result's report folder a link to a user's folder, then report and run",
+           (one_line(rep) or rep.returncode == 0) and run.returncode == 0
+           and sorted(p.name for p in own.iterdir()) == ["chapter3.tex"]
+           and verify(folder).returncode == 0,
+           f"report {rep.returncode} {_stderr_tail(rep, 100)}, run {run.returncode}, "
+           f"user's folder {sorted(p.name for p in own.iterdir())}")
+
+
+def f_compressed_input_damaged():
+    """A gzip, bzip2 or xz input cut in half (a copy stopped) or with two bytes flipped."""
+    import bz2
+    import gzip
+    import lzma
+    bundle = _bundle("cz")
+    data = (bundle / "tower.csv").read_bytes()
+    seen = []
+    for suffix, compress in (("gz", gzip.compress), ("bz2", bz2.compress),
+                             ("xz", lzma.compress)):
+        packed = compress(data)
+        flipped = bytearray(packed)
+        flipped[len(packed) // 2] ^= 0xFF
+        flipped[len(packed) // 2 + 1] ^= 0x55
+        for how, content in (("cut", packed[: len(packed) // 2]), ("flipped", bytes(flipped))):
+            name = f"{how}.csv.{suffix}"
+            (bundle / name).write_bytes(content)
+            (bundle / f"{how}_{suffix}.toml").write_text(
+                (bundle / "site.toml").read_text().replace("tower.csv", name))
+            out = W / "cz_out"
+            shutil.rmtree(out, ignore_errors=True)
+            done = fp("run", f"{how}_{suffix}.toml", "--out", out, "--quiet", cwd=bundle)
+            seen.append((name, done.returncode, one_line(done) and name in done.stderr
+                         and not out.exists()))
+    record("a compressed input (gzip, bzip2, xz) cut in half or with bytes flipped",
+           all(s[2] for s in seen), f"{seen}")
+
+
+def f_stack_limit():
+    """A small stack (``ulimit -s`` 128 and 256 KiB; threads' stacks follow it): run and
+    verify complete with the same bytes, or stop with one line. (At 64 KiB the
+    interpreter itself crashes before any code runs: ``python -c pass`` exits 139.)"""
+    import resource
+    seen = []
+    for kib in (128, 256):
+        out = W / "stack"
+        shutil.rmtree(out, ignore_errors=True)
+        done = limited({resource.RLIMIT_STACK: kib << 10}, "run", "site.toml", "--out", out,
+                       "--quiet")
+        checked = limited({resource.RLIMIT_STACK: kib << 10}, "verify", "--quiet", out)
+        fine = ((done.returncode == 0 and table_digests(out) == table_digests(W / "r0")
+                 and checked.returncode == 0) or one_line(done))
+        seen.append((kib, done.returncode, checked.returncode, fine))
+    record("a small stack (ulimit -s 128 and 256 KiB) during run and verify",
+           all(s[3] for s in seen) and not leftovers(W), f"{seen}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
           f_concurrent_two_folders, f_injected, f_moved_during_report,
           f_other_platform_verify, f_input_changing, f_batch_stopped, f_batch_group_signal,
-          f_batch_worker_killed, f_batch_odd_out]
+          f_batch_worker_killed, f_batch_odd_out,
+          # round faults36
+          f_file_size_limit, f_open_file_limit, f_memory_limit, f_input_fifo, f_input_symlink,
+          f_out_symlink, f_out_is_file, f_out_not_utf8, f_same_folder_twice,
+          f_other_tools_folder, f_stale_lock_other_host, f_verify_damaged, f_readonly_rerun,
+          f_disk_full,
+          f_locale_bytes, f_future_mtimes, f_huge_line, f_quotes_path,
+          f_input_replaced_by_rename, f_batch_killed_rerun, f_batch_full_disk,
+          f_batch_open_files, f_hard_linked_copy, f_report_folder_link,
+          f_compressed_input_damaged, f_stack_limit]
 
 if __name__ == "__main__":
     wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
