@@ -171,7 +171,8 @@ _FAILURE_COLUMNS = {
     "config": ("", "absolute path of the site config"),
     "error": ("", "error class"),
     "message": ("", "error message"),
-    "kind": ("", "'input': bad input or settings; 'internal': a fault of fluxpart or of the "
+    "kind": ("", "'input': bad input or settings; 'output': the result folder could not be "
+             "written (full disk, permissions); 'internal': a fault of fluxpart or of the "
              "cluster"),
 }
 #: The batch summary's columns: NEE with its stated 95 % interval (review33: the sites'
@@ -229,7 +230,7 @@ class SiteOutcome:
         The annual budget as stored in the folder's ``annual.parquet``
         [g C m-2 per year], indexed by year.
     error, message, kind : str
-        Error class, message and ``"input"`` or ``"internal"`` of a failure.
+        Error class, message and ``"input"``, ``"output"`` or ``"internal"`` of a failure.
     traceback : str
         Traceback of an internal failure (a fault of fluxpart or of the cluster).
     warnings : tuple of str
@@ -734,9 +735,11 @@ def tidy_skipped(directory, wait: float = 0.0) -> list[str]:
 
 
 def _failure(common: dict, error: BaseException) -> SiteOutcome:
-    kind = "input" if isinstance(error, FluxpartError) else "internal"
+    # a full disk or an unwritable folder is the output's, not the site's input (faults36)
+    kind = ("output" if isinstance(error, OutputError)
+            else "input" if isinstance(error, FluxpartError) else "internal")
     text = str(error) or repr(error)
-    trace = "" if kind == "input" else "".join(traceback.format_exception(error))
+    trace = "" if kind in ("input", "output") else "".join(traceback.format_exception(error))
     # the first public class: a private subclass (the reader's _EmptyFileError) is no
     # name a user can look up or catch
     name = next(c.__name__ for c in type(error).__mro__ if not c.__name__.startswith("_"))

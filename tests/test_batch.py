@@ -204,7 +204,8 @@ def test_unreachable_scheduler_is_a_clear_error(towers, tmp_path, monkeypatch):
 # --------------------------------------------------------------------------- one site
 
 def test_run_site_reports_failures_instead_of_raising(towers, tmp_path, monkeypatch):
-    """A bad input is an 'input' failure; any other exception an 'internal' one with traceback."""
+    """A bad input is an 'input' failure, an unwritable result an 'output' one; any other
+    exception an 'internal' one with traceback."""
     root, configs = towers
     bad = _write_bad_tower(tmp_path, configs["tower0"])
     outcome = batch.run_site("broken", bad, tmp_path / "out" / "broken")
@@ -226,6 +227,16 @@ def test_run_site_reports_failures_instead_of_raising(towers, tmp_path, monkeypa
     outcome = batch.run_site("empty", config, tmp_path / "out" / "empty")
     assert (outcome.kind, outcome.error) == ("input", "InputFileError")
     assert outcome.note.startswith("InputFileError: ") and "no records" in outcome.message
+
+    # faults36: a full disk while writing was recorded as the site's 'input' failure
+    def disk_full(path):
+        from fluxpart.errors import OutputError
+        raise OutputError("writing the result folder failed: No space left on device")
+
+    monkeypatch.setattr("fluxpart.pipeline.process_site_config", disk_full)
+    outcome = batch.run_site("tower0", configs["tower0"], tmp_path / "out" / "tower0")
+    assert (outcome.status, outcome.kind, outcome.error) == ("failed", "output", "OutputError")
+    assert outcome.traceback == ""
 
     def explode(path):
         raise ZeroDivisionError("a fault inside")
