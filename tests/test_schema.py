@@ -130,7 +130,7 @@ def test_nighttime_gpp_description_warns_of_negative_values():
 def test_daytime_gpp_description_says_where_it_is_zero(written_demo):
     """The description of `gpp_daytime` holds on the written records (round modeller27).
 
-    Lasslop et al. (2010), Global Change Biology 16, 187-208, eq. 4: the rectangular
+    Lasslop et al. (2010), Global Change Biology 16, 187-208, eq. 3 (m): the rectangular
     hyperbola alpha*beta*Rg/(alpha*Rg + beta) is 0 at Rg = 0 and > 0 for Rg > 0, so the
     term is 0 where the radiation is not above 0, not "at night": a radiometer's night
     offset or twilight gives small values (before: the text said "0 at night", and 4,442
