@@ -87,7 +87,9 @@ _GPP_NIGHTTIME = (
     "biases sums upward)")
 _GPP_DAYTIME = (
     "gross primary production by the daytime light-response method (Lasslop et al. 2010), CO2; "
-    "positive = uptake; the light-response term, 0 at night and >= 0 by construction")
+    "positive = uptake; the light-response term, >= 0 by construction and 0 where rg_filled <= 0: "
+    "a night record whose rg_filled is above 0 (a radiometer's offset, twilight) gets a small "
+    "value")
 
 _TIMESERIES = {
     "time": ("", "start of the averaging interval, local standard time"),
