@@ -128,7 +128,7 @@ _TIMESERIES = {
 
 _BUDGET = {
     "date": ("", "calendar day (local standard time)"),
-    "month": ("", "first day of the calendar month"),
+    "month": ("", "first day of the calendar month (local standard time)"),
     "year": ("", "calendar year of the interval starts (the year the budget year starts in)"),
     "period_start": ("", "first day of the budget year, from [processing] year_start (local "
                      "standard time)"),
