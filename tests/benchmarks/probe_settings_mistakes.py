@@ -18,6 +18,7 @@ import warnings
 from pathlib import Path
 
 EXAMPLE = Path(__file__).resolve().parents[2] / "examples" / "quillmoor_grassland.toml"
+MAIZE = EXAMPLE.with_name("quillmoor_maize_logger.toml")
 SUMS = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
 
 
@@ -102,6 +103,27 @@ CASES = {
     "despike_z 20": lambda t: _set(t, "processing", "despike_z", "20"),
     "rg_margin 500": lambda t: _set(t, "processing", "rg_margin", "500"),
     "clock_check warn": lambda t: _set(t, "processing", "clock_check", '"warn"'),
+    "events 2021-06-05 (as meant)": lambda t: _set(t, "processing", "events", '["2021-06-05"]'),
+    "events 2021-05-06 (day and month exchanged)": lambda t: _set(t, "processing", "events",
+                                                                 '["2021-05-06"]'),
+    "year_start 12-31 (a year's last day)": lambda t: _set(t, "processing", "year_start",
+                                                         '"12-31"'),
+    "longitude and utc_offset both west": lambda t: _set(_set(t, "site", "longitude", "-10.2"),
+                                                         "site", "utc_offset", "-1"),
+}
+
+#: Mistakes of the maize logger example (civil time, storage, PAR, two flags).
+MAIZE_CASES = {
+    "maize: time_zone left out (civil time)": lambda t: _drop(t, "time_zone"),
+    "maize: canopy tall": lambda t: _set(t, "site", "canopy", '"tall"'),
+    "maize: flag_accept [0, 1, 2]": lambda t: _set(t, "input", "flag_accept", "[0, 1, 2]"),
+    "maize: flag_accept [0]": lambda t: _set(t, "input", "flag_accept", "[0]"),
+    "maize: rows_after_header 0 (units line as data)": lambda t: _set(
+        t, "input", "rows_after_header", "0"),
+    "maize: time_zone Europe/London": lambda t: _set(t, "input", "time_zone",
+                                                     '"Europe/London"'),
+    "maize: night_rg_threshold 0.01": lambda t: _set(t, "processing", "night_rg_threshold",
+                                                     "0.01"),
 }
 
 
@@ -122,16 +144,20 @@ def run(text: str, folder: Path):
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser()
     parser.add_argument("--only", nargs="*", default=None)
+    parser.add_argument("--maize", action="store_true", help="the maize logger example")
     args = parser.parse_args(argv)
-    text = EXAMPLE.read_text()
+    example = MAIZE if args.maize else EXAMPLE
+    cases = MAIZE_CASES if args.maize else CASES
+    text = example.read_text()
     with tempfile.TemporaryDirectory() as tmp:
         folder = Path(tmp)
-        (folder / "quillmoor_grassland.csv").symlink_to(EXAMPLE.with_suffix(".csv"))
+        data = "quillmoor_maize_logger" if args.maize else "quillmoor_grassland.csv"
+        (folder / data).symlink_to(example.parent / data)
         clean, _, clean_warnings = run(text, folder)
         base = clean.annual.iloc[0]
         print("clean:", ", ".join(f"{s} {base[s]:.1f} (1σ {base[s + '_uncertainty_total']:.1f})"
                                    for s in SUMS))
-        for name, edit in CASES.items():
+        for name, edit in cases.items():
             if args.only and not any(o in name for o in args.only):
                 continue
             result, error, found = run(edit(text), folder)
@@ -144,7 +170,7 @@ def main(argv=None) -> int:
                               for s in SUMS)
             kind = "WARNED" if new else "SILENT"
             print(f"{name}: {kind} {moves}")
-            for w in new:
+            for w in dict.fromkeys(new):
                 print(f"    - {w[:300]}")
             sys.stdout.flush()
     return 0
