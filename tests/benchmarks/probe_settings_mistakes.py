@@ -110,6 +110,22 @@ CASES = {
                                                          '"12-31"'),
     "longitude and utc_offset both west": lambda t: _set(_set(t, "site", "longitude", "-10.2"),
                                                          "site", "utc_offset", "-1"),
+    "ustar_min_threshold 0.3 (another site's)": lambda t: _set(t, "processing",
+                                                          "ustar_min_threshold", "0.3"),
+    "ustar_min_threshold 0.5": lambda t: _set(t, "processing", "ustar_min_threshold", "0.5"),
+    "e0_max_relative_error 0.05 (5 %)": lambda t: _set(t, "processing",
+                                                       "e0_max_relative_error", "0.05"),
+    "e0_window_days 2 (weeks)": lambda t: _set(t, "processing", "e0_window_days", "2"),
+    "rref_window_days 1": lambda t: _set(t, "processing", "rref_window_days", "1"),
+    "e0_best_windows 30": lambda t: _set(t, "processing", "e0_best_windows", "30"),
+    "ustar_temperature_classes 1": lambda t: _set(t, "processing",
+                                                  "ustar_temperature_classes", "1"),
+    "ustar_classes 5": lambda t: _set(t, "processing", "ustar_classes", "5"),
+    "ustar_annual maximum": lambda t: _set(t, "processing", "ustar_annual", '"maximum"'),
+    "rg_relative_margin 0": lambda t: _set(t, "processing", "rg_relative_margin", "0"),
+    "daytime_curvature 1": lambda t: _set(t, "processing", "daytime_curvature", "1"),
+    "ustar_plateau_reference 1": lambda t: _set(t, "processing", "ustar_plateau_reference",
+                                                "1"),
 }
 
 #: Mistakes of the maize logger example (civil time, storage, PAR, two flags).
