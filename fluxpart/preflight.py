@@ -35,6 +35,8 @@ many Rg records above potential           screening (clock evidence)          no
 radiation
 night_rg_threshold counting sunlit        night mask (``night_threshold``)    no
 records with photosynthesis as night
+night_rg_threshold reached by a tenth of  night mask (``night_threshold``)    no
+deep-night records (sensor noise as day)
 a variable repeating one value for days   input (stuck sensor)                no
 (Rg: with the sun up)
 a day or more of records repeating        input (repeated records)            no
@@ -147,7 +149,7 @@ from .column_faults import (
     zero_coded_temperature,
 )
 from .gapfill import QUALITY_A_WINDOW_DAYS
-from .night_threshold import twilight_as_night
+from .night_threshold import dark_as_day, twilight_as_night
 from .screening import site_flag
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
@@ -1489,6 +1491,10 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     if "rg" in frame.columns:
         findings += [Finding("night mask", text, False) for text in twilight_as_night(
             pd.to_numeric(frame["rg"], errors="coerce"), potential, config.night_rg_threshold)]
+    if not dark and sun_elevation is not None and "rg" in frame.columns:
+        findings += [Finding("night mask", text, False) for text in dark_as_day(
+            pd.to_numeric(frame["rg"], errors="coerce"), sun_elevation,
+            config.night_rg_threshold)]
     if dark and any(f.fatal and f.stage.startswith("nighttime") for f in findings):
         # the cause of the nighttime stages' failure: named first in run's error
         dark = [Finding(dark[0].stage, dark[0].message, True)]

@@ -22,6 +22,13 @@ factor and keeps fewer than :data:`KEPT_NIGHT_SHARE` of the measured night recor
 the detected threshold keeps (round mistakes41: 0.5 m s-1 on the grassland example was
 named only by the E0 windows it emptied), a threshold in another unit or of another
 site rather than this site's own.
+
+A floor, ``ustar_min_threshold``, set far above the threshold the night records show
+does the same to a detected threshold: every year sits at the floor. On the grassland
+example 0.5 m s-1 moved NEE by -36.5 g C m-2 (4.0 sigma), nighttime Reco by -42.4 and
+daytime Reco by +63.2 (3.2 sigma), named only by the E0 windows it emptied (round
+mistakes43). :func:`floor_far_above_note` names it by the same rule, against the
+detection under the canopy's own floor.
 """
 
 from __future__ import annotations
@@ -32,7 +39,8 @@ import pandas as pd
 from . import ustar
 from .ustar_seasonal import SEASONAL_MARGIN
 
-__all__ = ["KEPT_NIGHT_SHARE", "fixed_threshold_note", "years_below_detected"]
+__all__ = ["KEPT_NIGHT_SHARE", "fixed_threshold_note", "floor_far_above_note",
+           "years_below_detected"]
 
 #: Bootstrap resamples of the check's detection: 100, Papale et al. (2006) (m), the
 #: default of ``Config.ustar_bootstrap_draws``, which a fixed run does not read.
@@ -144,18 +152,18 @@ def fixed_threshold_note(index, nee, ustar_values, tair, is_night, latitude: flo
     assimilation and ecosystem respiration. Global Change Biology 11, 1424-1439 (m).
     Papale, D., et al. (2006), as in :func:`years_below_detected`.
     """
-    found = ustar.detect_threshold(
-        index, np.asarray(nee, dtype=float), np.asarray(ustar_values, dtype=float),
-        np.asarray(tair, dtype=float), is_night, latitude, detector="moving_point",
-        draws=_DRAWS, seed=config.seed, min_threshold=floor,
-        temperature_classes=config.ustar_temperature_classes,
-        ustar_classes=config.ustar_classes, plateau_share=config.ustar_plateau_share,
-        correlation_limit=config.ustar_correlation_limit,
-        min_resolution=config.ustar_min_resolution, annual=config.ustar_annual,
-        plateau_reference=config.ustar_plateau_reference)
+    found = _detected(index, nee, ustar_values, tair, is_night, latitude, config, floor)
     rows = years_below_detected(fixed, found.annual)
     if not len(rows):
-        return _far_above_note(fixed, found.annual, index, nee, ustar_values, is_night)
+        named = _far_above_years(fixed, found.annual, index, nee, ustar_values, is_night)
+        return None if not named else (
+            f"u* threshold: ustar_method = \"fixed\" filters at ustar_threshold = {fixed:g} "
+            f"m s-1, far above the threshold the night records show (moving point test "
+            f"with its bootstrap, m s-1; {named}): above it the night NEE no "
+            "longer rises with u*, so the fixed value removes well-mixed nights and the "
+            "nighttime fits run short of records; the fixed value is used as set: check "
+            "it is this site's threshold in m s-1 (not cm s-1 or another site's), or "
+            "remove ustar_method = \"fixed\" to filter at the detected threshold")
     years = "; ".join(
         f"{int(row.year)}: {row.threshold:.3f} (5-95 %: {row.threshold_p05:.3f}-"
         f"{row.threshold_p95:.3f})" for row in rows.itertuples())
@@ -174,10 +182,74 @@ def fixed_threshold_note(index, nee, ustar_values, tair, is_night, latitude: flo
             "\"fixed\" to filter at the detected threshold")
 
 
-def _far_above_note(fixed: float, annual: pd.DataFrame, index, nee, ustar_values,
-                    is_night) -> str | None:
-    """The warning where a fixed threshold [m s-1] lies far above the detected one and
-    keeps fewer than :data:`KEPT_NIGHT_SHARE` of the night records it keeps; None else.
+def floor_far_above_note(index, nee, ustar_values, tair, is_night, latitude: float,
+                         config, canopy_floor: float) -> str | None:
+    """A warning where ``ustar_min_threshold`` lifts the detected threshold far above
+    the one the night records show.
+
+    Parameters
+    ----------
+    index, nee, ustar_values, tair, is_night, latitude
+        As for :func:`fixed_threshold_note`.
+    config : fluxpart.Config
+        The run's settings: ``ustar_min_threshold`` [m s-1] (the floor judged), the
+        moving point test's settings and the seed.
+    canopy_floor : float
+        The canopy's own floor [m s-1] (:data:`fluxpart.ustar.CANOPY_FLOORS`), under
+        which the threshold is detected for the comparison.
+
+    Returns
+    -------
+    str or None
+        The text naming each year where the floor lies above ``SEASONAL_MARGIN`` times
+        the 95th percentile detected under the canopy's floor and keeps fewer than
+        :data:`KEPT_NIGHT_SHARE` of the measured night records that threshold keeps;
+        None where no floor is set above the canopy's or no year qualifies.
+
+    Notes
+    -----
+    The rule of a fixed threshold set too high (round mistakes41), for a floor: the
+    floor, not the night data, then sets every such year's threshold. The floor is used
+    as set.
+
+    References
+    ----------
+    Reichstein et al. (2005) and Papale et al. (2006), as in :func:`fixed_threshold_note`.
+    """
+    floor = config.ustar_min_threshold
+    if floor is None or floor <= canopy_floor or config.ustar_method == "fixed":
+        return None
+    found = _detected(index, nee, ustar_values, tair, is_night, latitude, config,
+                      canopy_floor)
+    named = _far_above_years(floor, found.annual, index, nee, ustar_values, is_night)
+    if not named:
+        return None
+    return (f"u* threshold: ustar_min_threshold = {floor:g} m s-1 sets the threshold, far "
+            f"above the one the night records show under the canopy's floor of "
+            f"{canopy_floor:g} m s-1 (moving point test with its bootstrap, m s-1; {named}): "
+            "above it the night NEE no longer rises with u*, so the floor removes "
+            "well-mixed nights and the nighttime fits run short of records; the floor is "
+            "used as set: check it is a floor for this site in m s-1 (not cm s-1 or another "
+            "site's threshold), or remove ustar_min_threshold")
+
+
+def _detected(index, nee, ustar_values, tair, is_night, latitude, config, floor):
+    """The moving point test with its 100-draw bootstrap under `floor` [m s-1]."""
+    return ustar.detect_threshold(
+        index, np.asarray(nee, dtype=float), np.asarray(ustar_values, dtype=float),
+        np.asarray(tair, dtype=float), is_night, latitude, detector="moving_point",
+        draws=_DRAWS, seed=config.seed, min_threshold=floor,
+        temperature_classes=config.ustar_temperature_classes,
+        ustar_classes=config.ustar_classes, plateau_share=config.ustar_plateau_share,
+        correlation_limit=config.ustar_correlation_limit,
+        min_resolution=config.ustar_min_resolution, annual=config.ustar_annual,
+        plateau_reference=config.ustar_plateau_reference)
+
+
+def _far_above_years(fixed: float, annual: pd.DataFrame, index, nee, ustar_values,
+                     is_night) -> str:
+    """The years where a threshold [m s-1] lies far above the detected one and keeps
+    fewer than :data:`KEPT_NIGHT_SHARE` of the night records it keeps, as text ("" if none).
 
     Per year of `annual` (``year``, ``threshold``, ``threshold_p95`` [m s-1]): `fixed`
     above ``SEASONAL_MARGIN`` times the 95th percentile, and the measured night records
@@ -185,7 +257,7 @@ def _far_above_note(fixed: float, annual: pd.DataFrame, index, nee, ustar_values
     above the detected threshold.
     """
     if not len(annual) or "threshold_p95" not in annual.columns:
-        return None
+        return ""
     years = pd.DatetimeIndex(index).year.to_numpy()
     nee = np.asarray(nee, dtype=float)
     ustar_values = np.asarray(ustar_values, dtype=float)
@@ -202,12 +274,4 @@ def _far_above_note(fixed: float, annual: pd.DataFrame, index, nee, ustar_values
                          f"{row.threshold_p05:.3f}-{row.threshold_p95:.3f}), {kept} of the "
                          f"{detected} measured night records it keeps "
                          f"({100 * (kept / detected):.1f} %)")
-    if not named:
-        return None
-    return (f"u* threshold: ustar_method = \"fixed\" filters at ustar_threshold = {fixed:g} "
-            f"m s-1, far above the threshold the night records show (moving point test "
-            f"with its bootstrap, m s-1; {'; '.join(named)}): above it the night NEE no "
-            "longer rises with u*, so the fixed value removes well-mixed nights and the "
-            "nighttime fits run short of records; the fixed value is used as set: check "
-            "it is this site's threshold in m s-1 (not cm s-1 or another site's), or "
-            "remove ustar_method = \"fixed\" to filter at the detected threshold")
+    return "; ".join(named)

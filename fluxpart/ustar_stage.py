@@ -197,6 +197,12 @@ def threshold_stage(frame, screened, is_night, site, config) -> UstarStage:
             config, ustar.CANOPY_FLOORS[site.canopy] if config.ustar_min_threshold is None
             else config.ustar_min_threshold)
         warnings.extend([low] if low else [])
+    # a floor far above the night records' threshold (round mistakes43)
+    high_floor = ustar_fixed.floor_far_above_note(
+        frame.index, screened["nee"].to_numpy(), screened["ustar"].to_numpy(),
+        screened["tair"].to_numpy(), is_night, site.latitude, config,
+        ustar.CANOPY_FLOORS[site.canopy])
+    warnings.extend([high_floor] if high_floor else [])
     warnings.extend(settings_notes.ignored_settings(config))
     return UstarStage(table, draws, central, scenarios, warnings)
 

@@ -62,3 +62,34 @@ def test_the_preflight_names_it(grassland):
                       np.zeros(len(frame), bool), demo.site().latitude, config, 30)
     [named] = [f for f in found if "night_rg_threshold = 40 W m-2 counts" in f.message]
     assert named.stage == "night mask" and not named.fatal
+
+
+def test_a_threshold_inside_the_noise_of_deep_night_is_named(grassland):
+    """With the sun 12 degrees or more below the horizon (nautical twilight's end,
+    Seidelmann 1992 (m)) the sky gives no measurable Rg, so a threshold that a tenth of
+    those records reach counts sensor noise as day (round mistakes43: 0.01, a threshold
+    written in kW m-2, moved the example's NEE by 2.0 sigma, nighttime GPP by 2.9 sigma).
+    The default and the top of the thresholds in use (20 W m-2) are quiet; 0.01 is named
+    with its kW m-2 reading; 1 through the preflight where it has the sun's elevation."""
+    from fluxpart.night_threshold import DEEP_NIGHT_ELEVATION, dark_as_day
+    from fluxpart.preflight import preflight
+    from fluxpart.solar import interval_midpoint_elevation
+
+    frame, potential = grassland
+    site = demo.site()
+    elevation = interval_midpoint_elevation(frame.index, site.latitude, site.longitude,
+                                            site.utc_offset, 30)
+    rg = frame["rg"].to_numpy()
+    deep = (elevation <= DEEP_NIGHT_ELEVATION) & np.isfinite(rg)
+    assert deep.sum() > 4000 and np.nanpercentile(rg[deep], 99) < 10.0   # noise only
+    assert dark_as_day(rg, elevation, 10.0) == dark_as_day(rg, elevation, 20.0) == []
+    [text] = dark_as_day(rg, elevation, 0.01)
+    share = round(100 * (rg[deep] >= 0.01).mean())
+    assert f"reached by {share} % of the {int(deep.sum())} records" in text
+    assert "0.01 kW m-2 = 10 W m-2" in text
+    assert dark_as_day(np.where(deep, 0.0, rg), elevation, 0.01) == []   # a clean zero
+    config = fluxpart.Config(night_rg_threshold=1.0)   # 0.01 reaches half: an offset's rule
+    found = preflight(frame, frame, rg < 1.0, potential, np.zeros(len(frame), bool),
+                      site.latitude, config, 30, sun_elevation=elevation)
+    [named] = [f for f in found if "= 1 W m-2 is reached by" in f.message]
+    assert named.stage == "night mask" and not named.fatal

@@ -109,13 +109,35 @@ def test_the_high_rule_needs_the_range_and_the_share_of_nights_kept():
     nee, night = np.ones(100), np.ones(100, dtype=bool)
     annual = pd.DataFrame({"year": [2021], "threshold": [0.2], "threshold_p05": [0.18],
                            "threshold_p95": [0.25]})
-    from fluxpart.ustar_fixed import _far_above_note
+    from fluxpart.ustar_fixed import _far_above_years
 
     # 0.95 keeps 6 of the 81 records at or above 0.2 (7 %): named; 0.8 keeps 21 (26 %): not
-    assert "6 of the 81" in _far_above_note(0.95, annual, index, nee, ustar_values, night)
-    assert _far_above_note(0.8, annual, index, nee, ustar_values, night) is None
+    assert "6 of the 81" in _far_above_years(0.95, annual, index, nee, ustar_values, night)
+    assert _far_above_years(0.8, annual, index, nee, ustar_values, night) == ""
     # within 1.2 times the 95th percentile, or without it: not named
     wide = annual.assign(threshold_p95=0.9)
-    assert _far_above_note(0.95, wide, index, nee, ustar_values, night) is None
-    assert _far_above_note(0.95, annual.drop(columns="threshold_p95"), index, nee,
-                           ustar_values, night) is None
+    assert _far_above_years(0.95, wide, index, nee, ustar_values, night) == ""
+    assert _far_above_years(0.95, annual.drop(columns="threshold_p95"), index, nee,
+                            ustar_values, night) == ""
+
+
+def test_a_floor_far_above_the_detected_range_is_named_and_one_below_it_is_quiet():
+    """Known truth (scenarios seed 1, planted 0.240 m s-1): ``ustar_min_threshold`` at 2.5
+    times the planted threshold lifts every year's threshold to it, as a fixed one would;
+    named by the rule of a fixed threshold far above (round mistakes43: 0.5 m s-1 on the
+    grassland example moved NEE by 4.0 sigma with no word of the floor). A floor below
+    the planted threshold, or no floor, is quiet; a fixed run is judged by its own note."""
+    from fluxpart.ustar_fixed import floor_far_above_note
+
+    site_year, is_night, planted = _site_year(1)
+    frame, site = site_year.frame, site_year.site
+    arguments = (frame.index, frame["nee"], frame["ustar"], frame["tair"], is_night,
+                 site.latitude)
+    floor = ustar.CANOPY_FLOORS[site.canopy]
+    text = floor_far_above_note(*arguments, Config(ustar_min_threshold=2.5 * planted), floor)
+    assert text is not None and f"ustar_min_threshold = {2.5 * planted:g} m s-1" in text
+    assert "measured night records it keeps" in text and "remove ustar_min_threshold" in text
+    for quiet in (Config(), Config(ustar_min_threshold=0.5 * planted),
+                  Config(ustar_method="fixed", ustar_threshold=planted,
+                         ustar_min_threshold=2.5 * planted)):
+        assert floor_far_above_note(*arguments, quiet, floor) is None

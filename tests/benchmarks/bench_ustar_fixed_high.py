@@ -5,8 +5,10 @@ detected 95th percentile (times 1.2) that keeps fewer than a tenth of the measur
 records the detected threshold keeps. Each generated site-year
 (``fluxpart.scenarios.generate``) is checked with the fixed threshold set to its planted
 one (the site's own, known truth: it must not be named as too high) and to 2.5 times it
-(a threshold of another site or a slip). Night: the sun below the horizon. Not collected
-by pytest; prints figures and asserts nothing. Usage::
+(a threshold of another site or a slip). Night: the sun below the horizon. Round
+mistakes43 adds the floor (``floor_far_above_note``): ``ustar_min_threshold`` at the
+planted threshold, at 0.1 m s-1 (the tall canopy's floor, a value in use) and at 2.5
+times the planted one. Not collected by pytest; prints figures and asserts nothing. Usage::
 
     OMP_NUM_THREADS=1 PYTHONPATH=. .venv/bin/python tests/benchmarks/bench_ustar_fixed_high.py --sites 20
 """
@@ -19,7 +21,7 @@ import warnings
 from fluxpart import Config, scenarios
 from fluxpart.solar import potential_radiation
 from fluxpart.ustar import CANOPY_FLOORS
-from fluxpart.ustar_fixed import fixed_threshold_note
+from fluxpart.ustar_fixed import fixed_threshold_note, floor_far_above_note
 
 FACTORS = (1.0, 2.5)
 
@@ -30,6 +32,7 @@ def main(argv=None) -> int:
     options = parser.parse_args(argv)
     warnings.simplefilter("ignore")
     named = {factor: 0 for factor in FACTORS}
+    floors_named = {"planted": 0, "0.1": 0, "x2.5": 0}
     for seed in range(options.sites):
         site_year = scenarios.generate(seed)
         frame, site = site_year.frame, site_year.site
@@ -46,11 +49,23 @@ def main(argv=None) -> int:
             hit = note is not None and "far above" in note
             named[factor] += hit
             found.append(hit)
+        floors = {"planted": planted, "0.1": 0.1, "x2.5": 2.5 * planted}
+        floor_hits = {}
+        for name, value in floors.items():
+            note = floor_far_above_note(
+                frame.index, frame["nee"].to_numpy(), frame["ustar"].to_numpy(),
+                frame["tair"].to_numpy(), night, site.latitude,
+                Config(ustar_min_threshold=value), CANOPY_FLOORS[site.canopy])
+            floor_hits[name] = note is not None
+            floors_named[name] += note is not None
         print(f"scenarios {seed:3d} planted {planted:.3f} " + "  ".join(
-            f"x{factor:g} {'named' if hit else '-'}" for factor, hit in zip(FACTORS, found, strict=True)),
+            f"x{factor:g} {'named' if hit else '-'}" for factor, hit in zip(FACTORS, found, strict=True))
+            + "  floor " + " ".join(f"{k} {'named' if v else '-'}" for k, v in floor_hits.items()),
             flush=True)
     print(f"\n{options.sites} site-years: named as too high " + ", ".join(
         f"x{factor:g} {named[factor]}" for factor in FACTORS) + " (x1: false alarms)")
+    print("floors named: " + ", ".join(f"{k} {v}" for k, v in floors_named.items())
+          + " (planted: false alarms)")
     return 0
 
 

@@ -1,0 +1,196 @@
+"""Probe: plausible site and settings mistakes on the grassland example (round mistakes43).
+
+Each case edits a copy of ``examples/quillmoor_grassland.toml`` (the CSV linked beside
+it), runs ``process_site_config`` (what ``run`` calls) and prints whether it was refused
+(the error line), warned (new warnings against the clean run) or silent, and the moves
+of the annual NEE, GPP and Reco against the clean run's stated 1 sigma.
+
+    PYTHONPATH=$PWD python tests/benchmarks/probe_settings_mistakes.py [--only NAME ...]
+"""
+
+from __future__ import annotations
+
+import argparse
+import re
+import sys
+import tempfile
+import warnings
+from pathlib import Path
+
+EXAMPLE = Path(__file__).resolve().parents[2] / "examples" / "quillmoor_grassland.toml"
+MAIZE = EXAMPLE.with_name("quillmoor_maize_logger.toml")
+SUMS = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
+
+
+def _set(text: str, section: str, key: str, value: str) -> str:
+    """Set ``key = value`` in ``[section]`` (replacing a line of the key there)."""
+    pattern = re.compile(rf"^{key}\s*=.*$", re.M)
+    head = text.index(f"[{section}]\n")
+    end = text.find("\n[", head + 1)
+    end = len(text) if end < 0 else end
+    block = text[head:end]
+    block = (pattern.sub(f"{key} = {value}", block) if pattern.search(block)
+             else block.rstrip("\n") + f"\n{key} = {value}\n")
+    return text[:head] + block + text[end:]
+
+
+def _drop(text: str, key: str) -> str:
+    return re.sub(rf"^{key}\s*=.*\n", "", text, flags=re.M)
+
+
+CASES = {
+    "utc_offset in minutes (60)": lambda t: _set(t, "site", "utc_offset", "60"),
+    "utc_offset as text '+1'": lambda t: _set(t, "site", "utc_offset", '"+1"'),
+    "utc_offset 0 (UTC assumed)": lambda t: _set(t, "site", "utc_offset", "0"),
+    "canopy 'grass'": lambda t: _set(t, "site", "canopy", '"grass"'),
+    "canopy 'Short'": lambda t: _set(t, "site", "canopy", '"Short"'),
+    "latitude 4.93 (decimal slip)": lambda t: _set(t, "site", "latitude", "4.93"),
+    "longitude 1.02 (decimal slip)": lambda t: _set(t, "site", "longitude", "1.02"),
+    "longitude 102 (decimal slip)": lambda t: _set(t, "site", "longitude", "102"),
+    "seed in [site]": lambda t: _set(_drop(t, "seed"), "site", "seed", "0"),
+    "canopy in [processing]": lambda t: _set(_drop(t, "canopy"), "processing", "canopy",
+                                             '"short"'),
+    "ustar_threshold in [input]": lambda t: _set(t, "input", "ustar_threshold", "0.2"),
+    "tair_tolerance 25 (for 2.5)": lambda t: _set(t, "processing", "tair_tolerance", "25"),
+    "tair_tolerance 0.25 (for 2.5)": lambda t: _set(t, "processing", "tair_tolerance", "0.25"),
+    "rg_tolerance 5 (for 50)": lambda t: _set(t, "processing", "rg_tolerance", "5"),
+    "vpd_tolerance 0.05 (kPa/10)": lambda t: _set(t, "processing", "vpd_tolerance", "0.05"),
+    "night_rg_threshold 0.01 (kW m-2)": lambda t: _set(t, "processing",
+                                                       "night_rg_threshold", "0.01"),
+    "night_rg_threshold 1": lambda t: _set(t, "processing", "night_rg_threshold", "1"),
+    "ustar_scenarios [84, 50, 16]": lambda t: _set(t, "processing", "ustar_scenarios",
+                                                   "[84, 50, 16]"),
+    "ustar_scenarios [1.6, 50, 84]": lambda t: _set(t, "processing", "ustar_scenarios",
+                                                    "[1.6, 50, 84]"),
+    "ustar_scenarios [50]": lambda t: _set(t, "processing", "ustar_scenarios", "[50]"),
+    "events 2021-06-31": lambda t: _set(t, "processing", "events", '["2021-06-31"]'),
+    "events 06/05/2021": lambda t: _set(t, "processing", "events", '["06/05/2021"]'),
+    "events a date not a list": lambda t: _set(t, "processing", "events", '"2021-06-05"'),
+    "year_start 13-01": lambda t: _set(t, "processing", "year_start", '"13-01"'),
+    "year_start 1-1": lambda t: _set(t, "processing", "year_start", '"1-1"'),
+    "ustar fixed, threshold forgotten": lambda t: _set(t, "processing", "ustar_method",
+                                                       '"fixed"'),
+    "ustar_threshold 0.02 fixed (decimal)": lambda t: _set(
+        _set(t, "processing", "ustar_method", '"fixed"'), "processing", "ustar_threshold",
+        "0.02"),
+    "ustar_min_threshold 0.01": lambda t: _set(t, "processing", "ustar_min_threshold",
+                                               "0.01"),
+    "e0_bounds [30, 45] (digit lost)": lambda t: _set(t, "processing", "e0_bounds",
+                                                      "[30, 45]"),
+    "e0_fallback 2 (a Q10)": lambda t: _set(t, "processing", "e0_fallback", "2"),
+    "daytime_beta0_max 50": lambda t: _set(t, "processing", "daytime_beta0_max", "50"),
+    "gapfill_max_window_days 7": lambda t: _set(t, "processing",
+                                                "gapfill_max_window_days", "7"),
+    "e0_min_temperature_range 0.5": lambda t: _set(t, "processing",
+                                                   "e0_min_temperature_range", "0.5"),
+    "rref_window_days 31": lambda t: _set(t, "processing", "rref_window_days", "31"),
+    "daytime_window_days 31": lambda t: _set(t, "processing", "daytime_window_days", "31"),
+    "ustar_plateau_share 0.5": lambda t: _set(t, "processing", "ustar_plateau_share", "0.5"),
+    "ustar_plateau_share 0.95": lambda t: _set(t, "processing", "ustar_plateau_share", "0.95"),
+    "ustar_plateau_share 0.9": lambda t: _set(t, "processing", "ustar_plateau_share", "0.9"),
+    "night_rg_threshold 2": lambda t: _set(t, "processing", "night_rg_threshold", "2"),
+    "agreement_margin 15 (percent)": lambda t: _set(t, "processing", "agreement_margin", "15"),
+    "flag_accept [0, 1, 2]": lambda t: _set(t, "input", "flag_accept", "[0, 1, 2]"),
+    "missing [-999]": lambda t: _set(t, "input", "missing", "[-999]"),
+    "interval_minutes 60 (30 min data)": lambda t: _set(t, "input", "interval_minutes", "60"),
+    "time_format day-month swapped": lambda t: _set(t, "input", "time_format",
+                                                    '"%Y%d%m%H%M"'),
+    "respiration_driver tsoil": lambda t: _set(t, "processing", "respiration_driver",
+                                               '"tsoil"'),
+    "respiration_driver soil": lambda t: _set(t, "processing", "respiration_driver",
+                                              '"soil"'),
+    "ustar_bootstrap_draws 5": lambda t: _set(t, "processing", "ustar_bootstrap_draws", "5"),
+    "despike_z 20": lambda t: _set(t, "processing", "despike_z", "20"),
+    "rg_margin 500": lambda t: _set(t, "processing", "rg_margin", "500"),
+    "clock_check warn": lambda t: _set(t, "processing", "clock_check", '"warn"'),
+    "events 2021-06-05 (as meant)": lambda t: _set(t, "processing", "events", '["2021-06-05"]'),
+    "events 2021-05-06 (day and month exchanged)": lambda t: _set(t, "processing", "events",
+                                                                 '["2021-05-06"]'),
+    "year_start 12-31 (a year's last day)": lambda t: _set(t, "processing", "year_start",
+                                                         '"12-31"'),
+    "longitude and utc_offset both west": lambda t: _set(_set(t, "site", "longitude", "-10.2"),
+                                                         "site", "utc_offset", "-1"),
+    "ustar_min_threshold 0.3 (another site's)": lambda t: _set(t, "processing",
+                                                          "ustar_min_threshold", "0.3"),
+    "ustar_min_threshold 0.5": lambda t: _set(t, "processing", "ustar_min_threshold", "0.5"),
+    "e0_max_relative_error 0.05 (5 %)": lambda t: _set(t, "processing",
+                                                       "e0_max_relative_error", "0.05"),
+    "e0_window_days 2 (weeks)": lambda t: _set(t, "processing", "e0_window_days", "2"),
+    "rref_window_days 1": lambda t: _set(t, "processing", "rref_window_days", "1"),
+    "e0_best_windows 30": lambda t: _set(t, "processing", "e0_best_windows", "30"),
+    "ustar_temperature_classes 1": lambda t: _set(t, "processing",
+                                                  "ustar_temperature_classes", "1"),
+    "ustar_classes 5": lambda t: _set(t, "processing", "ustar_classes", "5"),
+    "ustar_annual maximum": lambda t: _set(t, "processing", "ustar_annual", '"maximum"'),
+    "rg_relative_margin 0": lambda t: _set(t, "processing", "rg_relative_margin", "0"),
+    "daytime_curvature 1": lambda t: _set(t, "processing", "daytime_curvature", "1"),
+    "ustar_plateau_reference 1": lambda t: _set(t, "processing", "ustar_plateau_reference",
+                                                "1"),
+}
+
+#: Mistakes of the maize logger example (civil time, storage, PAR, two flags).
+MAIZE_CASES = {
+    "maize: time_zone left out (civil time)": lambda t: _drop(t, "time_zone"),
+    "maize: canopy tall": lambda t: _set(t, "site", "canopy", '"tall"'),
+    "maize: flag_accept [0, 1, 2]": lambda t: _set(t, "input", "flag_accept", "[0, 1, 2]"),
+    "maize: flag_accept [0]": lambda t: _set(t, "input", "flag_accept", "[0]"),
+    "maize: rows_after_header 0 (units line as data)": lambda t: _set(
+        t, "input", "rows_after_header", "0"),
+    "maize: time_zone Europe/London": lambda t: _set(t, "input", "time_zone",
+                                                     '"Europe/London"'),
+    "maize: night_rg_threshold 0.01": lambda t: _set(t, "processing", "night_rg_threshold",
+                                                     "0.01"),
+}
+
+
+def run(text: str, folder: Path):
+    from fluxpart.errors import FluxpartError
+    from fluxpart.pipeline import process_site_config
+    config = folder / "site.toml"
+    config.write_text(text)
+    try:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            result = process_site_config(config)
+    except FluxpartError as error:
+        return None, str(error).splitlines()[0], ()
+    return result, None, tuple(result.warnings) + tuple(str(w.message) for w in caught)
+
+
+def main(argv=None) -> int:
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--only", nargs="*", default=None)
+    parser.add_argument("--maize", action="store_true", help="the maize logger example")
+    args = parser.parse_args(argv)
+    example = MAIZE if args.maize else EXAMPLE
+    cases = MAIZE_CASES if args.maize else CASES
+    text = example.read_text()
+    with tempfile.TemporaryDirectory() as tmp:
+        folder = Path(tmp)
+        data = "quillmoor_maize_logger" if args.maize else "quillmoor_grassland.csv"
+        (folder / data).symlink_to(example.parent / data)
+        clean, _, clean_warnings = run(text, folder)
+        base = clean.annual.iloc[0]
+        print("clean:", ", ".join(f"{s} {base[s]:.1f} (1σ {base[s + '_uncertainty_total']:.1f})"
+                                   for s in SUMS))
+        for name, edit in cases.items():
+            if args.only and not any(o in name for o in args.only):
+                continue
+            result, error, found = run(edit(text), folder)
+            if error:
+                print(f"{name}: REFUSED {error[:300]}")
+                continue
+            new = [w for w in found if w not in clean_warnings]
+            row = result.annual.iloc[0]
+            moves = ", ".join(f"{s} {row[s] - base[s]:+.1f} ({(row[s] - base[s]) / base[s + '_uncertainty_total']:+.1f}σ)"
+                              for s in SUMS)
+            kind = "WARNED" if new else "SILENT"
+            print(f"{name}: {kind} {moves}")
+            for w in dict.fromkeys(new):
+                print(f"    - {w[:300]}")
+            sys.stdout.flush()
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())
