@@ -3727,8 +3727,10 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         kept = len(raw) - summary
         shown = ", ".join(repr(word) for word in dict.fromkeys(stamp_text.iloc[kept:]
                                                                .str.strip()))
-        warnings.append(f"input file {source!r}: its last {summary} line(s) ({int(lines[kept])}"
-                        f" to {int(lines[-1])}: {shown}) have a word for a stamp, no record (a "
+        where = (f"last line ({int(lines[-1])}" if summary == 1 else
+                 f"last {summary} lines ({int(lines[kept])} to {int(lines[-1])}")
+        warnings.append(f"input file {source!r}: its {where}: {shown}) "
+                        f"{'has' if summary == 1 else 'have'} a word for a stamp, no record (a "
                         "footer, or a spreadsheet's statistics under the records): dropped")
         raw = raw.iloc[:kept].reset_index(drop=True)
         stamp_text = stamp_text.iloc[:kept].reset_index(drop=True)

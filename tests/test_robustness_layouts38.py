@@ -19,7 +19,7 @@ from test_robustness_layouts36 import MAPPING, SITE
 from test_robustness_layouts37 import _assert_all
 
 from fluxpart.counted_time import counted_form, counted_stamps
-from fluxpart.errors import TimestampError
+from fluxpart.errors import InputFileError, TimestampError
 from fluxpart.io import read_table
 
 
@@ -186,7 +186,7 @@ def test_counted_stamps_with_a_decimal_comma(tmp_path):
      "'End of data') open with words after a blank line"),
     # a spreadsheet's statistics under the records: "are a summary" and refused before
     (["mean,1,2,3,4,5", "max,6,7,8,9,10"],
-     "its last 2 line(s) (482 to 483: 'mean', 'max') have a word for a stamp, no record"),
+     "its last 2 lines (482 to 483: 'mean', 'max') have a word for a stamp, no record"),
 ])
 def test_a_footer_of_words_or_statistics_is_dropped_and_named(tmp_path, footer, dropped):
     frame, ends = _records()
@@ -198,12 +198,26 @@ def test_a_footer_of_words_or_statistics_is_dropped_and_named(tmp_path, footer, 
     assert any(dropped in w for w in report.warnings), report.warnings
 
 
+def test_records_opening_with_a_site_name_are_no_footer(tmp_path):
+    """Records that open with the site's name (a word) and end cut short after a blank
+    line are records, not a footer about the file: refused as cut short, as before
+    layouts38, not dropped (review51: they were dropped with a footer's warning)."""
+    frame, ends = _records()
+    frame = frame.copy()
+    frame.insert(0, "site", "QM")
+    lines = frame.to_csv(index=False).splitlines()
+    cut = [",".join(line.split(",")[:-2]) for line in lines[-2:]]
+    path = tmp_path / "t.csv"
+    path.write_text("\n".join(lines[:-2] + [""] + cut) + "\n")
+    with pytest.raises(InputFileError, match=r"line 481 \('QM,.*has 5 fields where the "
+                                              r"header has 7; a record cut short"):
+        _read(path)
+
+
 def test_words_without_a_blank_line_or_among_the_records_stay_refused(tmp_path):
     """A short line of words right under the records is judged as before (two such lines
     before the last: a record cut short or a footer, refused); a word stamp among the
     records is no summary under them."""
-    from fluxpart.errors import InputFileError
-
     frame, _ = _records()
     path = tmp_path / "t.csv"
     path.write_text(frame.to_csv(index=False) + "Records written,480\nEnd,of,data\nEnd\n")
