@@ -31,6 +31,8 @@ _FORM = re.compile(
     r"(?P<date>\d{4}-\d{1,2}-\d{1,2})"
     r"(?:[ T](?P<time>\d{1,2}:\d{2}(?::\d{2}(?:\.\d+)?)?))?"
     r"\s*(?P<clock>UTC|GMT|Z|[+-]\d{1,2}(?::?\d{2})?)?\s*", re.IGNORECASE)
+#: a format that means to count time since a date, well formed or not
+_SINCE = re.compile(r"\s*\S+\s+since(\s|$)", re.IGNORECASE)
 
 
 def counted_form(time_format: str):
@@ -51,17 +53,27 @@ def counted_form(time_format: str):
     Raises
     ------
     TimestampError
-        The reference date or time names no instant (2021-02-30, 25:00).
+        The reference date or time names no instant (2021-02-30, 25:00), the clock is
+        no UTC offset (beyond 14 hours, or 60 minutes or more), or the format counts
+        time "since" a date but is not of the form (a unit of weeks, a date written
+        30.12.1899).
 
     References
     ----------
     Eaton, B. et al. NetCDF Climate and Forecast (CF) Metadata Conventions, section 4.4
     "Time Coordinate": units of the form "<unit> since <reference date and time>" (m).
+    UTC offsets in civil use lie from -12:00 to +14:00 (IANA time zone database (m)).
     """
     if not isinstance(time_format, str):
         return None
     match = _FORM.fullmatch(time_format)
     if match is None:
+        if "%" not in time_format and _SINCE.match(time_format):
+            raise TimestampError(
+                f"[input] time_format = {time_format!r} cannot be used: a count of time is "
+                "read as \"<unit> since <YYYY-MM-DD>[ hh:mm[:ss]][ <clock>]\" with a unit of "
+                "days, hours, minutes, seconds or milliseconds and a clock of UTC, Z or "
+                "an offset such as +01:00 (e.g. \"days since 1899-12-30\")")
         return None
     unit = match["unit"].lower().rstrip("s")
     written = match["date"] + (" " + match["time"] if match["time"] else "")
@@ -78,6 +90,11 @@ def counted_form(time_format: str):
         else:
             sign, digits = clock[0], clock[1:].replace(":", "")
             hours, minutes = (digits[:-2], digits[-2:]) if len(digits) > 2 else (digits, "00")
+            if int(hours) > 14 or int(minutes) > 59:
+                raise TimestampError(
+                    f"[input] time_format = {time_format!r} cannot be used: {clock!r} is no "
+                    "UTC offset (offsets in use lie from -12:00 to +14:00; write it as "
+                    "+hh:mm)")
             clock = f"{sign}{int(hours):02d}:{minutes}"
     return _UNIT_SECONDS[unit], reference, clock
 
@@ -112,6 +129,9 @@ def counted_stamps(text: pd.Series, time_format: str) -> tuple[pd.Series, str, n
     day 1 is 1900-01-01 and the count keeps a 29 February 1900 that never was, so from
     March 1900 on day n is 1899-12-30 + n days) or, in Excel's 1904 date system, from
     1904-01-01 (m); Unix time counts seconds since 1970-01-01 00:00 UTC (POSIX.1) (m).
+    Every day is 86 400 s here, as in POSIX time and UDUNITS: no leap second is
+    counted, so a count of a clock that counts them (GPS time, 18 s ahead of UTC since
+    2017 (m)) is read that many seconds late.
     """
     seconds, reference, clock = counted_form(time_format)
     # a decimal comma (a spreadsheet of a comma locale): one comma before other than

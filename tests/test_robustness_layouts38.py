@@ -70,6 +70,14 @@ def test_counted_forms_and_their_refusals(tmp_path):
     assert counted_form("seconds since 1970-01-01 00:00 +0530")[2] == "+05:30"
     with pytest.raises(TimestampError, match="'2021-02-30' is no date"):
         counted_form("days since 2021-02-30")
+    # UTC offsets in civil use lie from -12:00 to +14:00 (IANA time zone database (m));
+    # '+25' was written into each stamp and refused as stamps not matching "%z" (review51)
+    with pytest.raises(TimestampError, match="'\\+25' is no UTC offset"):
+        counted_form("seconds since 1970-01-01 00:00 +25")
+    # UDUNITS' 'week' is no unit of the form: was read as a strptime format (review51)
+    for written in ("weeks since 2021-06-05", "days since 30.12.1899"):
+        with pytest.raises(TimestampError, match="a count of time is read as"):
+            counted_form(written)
     frame, ends = _records()
     serial = [f"{(e.to_pydatetime() - datetime(1899, 12, 30)) / timedelta(days=1):.6f}"
               for e in ends]
