@@ -78,6 +78,7 @@ from .errors import (
     ImplausibleValueError,
     InputFileError,
     MissingColumnError,
+    NonMonotonicTimestampError,
     TimestampError,
     UnitError,
     read_fault_remedy,
@@ -3803,8 +3804,17 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         duplicate = table.duplicated(keep="first").to_numpy()
     keep = ~duplicate
     stamps = parsed.stamps[keep]
-    check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
-                time_zone=time_zone)
+    try:
+        check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
+                    time_zone=time_zone)
+    except NonMonotonicTimestampError as error:
+        if not newest_first:
+            raise
+        # "comes after" is said of the order read, from the last line up (review51: a
+        # swapped pair in a newest-first file read as two lines in the wrong order)
+        raise NonMonotonicTimestampError(
+            f"input file {source!r} is written newest first, so it is read from its last "
+            f"line up, and in that order {error}") from None
     return {
         "header_line": next(iter(text.splitlines()[rows_before_header:]), "").strip(),
         "under_header": [line.strip() for line in text.splitlines()[

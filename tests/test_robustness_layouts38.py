@@ -19,7 +19,7 @@ from test_robustness_layouts36 import MAPPING, SITE
 from test_robustness_layouts37 import _assert_all
 
 from fluxpart.counted_time import counted_form, counted_stamps
-from fluxpart.errors import InputFileError, TimestampError
+from fluxpart.errors import InputFileError, NonMonotonicTimestampError, TimestampError
 from fluxpart.io import read_table
 
 
@@ -138,6 +138,22 @@ def test_a_file_newest_first_in_civil_time_is_read_in_the_loggers_order(tmp_path
     _assert_all(read, frame, ends)
     assert any("2 of 2 input files ('" in w and "are written newest first" in w
                for w in report.warnings)
+
+
+def test_a_pair_out_of_place_in_a_newest_first_file_is_named_in_the_order_read(tmp_path):
+    """A file written newest first with two neighbouring lines exchanged: refused, and the
+    message says the file is read from its last line up, in which order one stamp comes
+    after a later one (review51: it said only "comes after", of two lines that in the
+    file stand the other way round). Invented records."""
+    frame, ends = _records()
+    stamps = [f"{e:%Y%m%d%H%M}" for e in ends][::-1]
+    stamps[100], stamps[101] = stamps[101], stamps[100]
+    path = _write(tmp_path, stamps, frame.iloc[::-1])
+    with pytest.raises(NonMonotonicTimestampError,
+                       match=r"is written newest first, so it is read from its last line "
+                             r"up, and in that order stamps go backwards at line 102 .*"
+                             r"'202106082130' comes after '202106082200'"):
+        _read(path)
 
 
 def test_names_in_decomposed_unicode_are_the_settings_columns(tmp_path):
