@@ -187,6 +187,26 @@ def test_names_in_decomposed_unicode_are_the_settings_columns(tmp_path):
                    time_marks="end")
 
 
+@pytest.mark.parametrize("time_format, scale, other", [
+    # Unix time in milliseconds (POSIX.1 counts seconds (m)) under a form of seconds: was
+    # "no number", each count beyond 3000 years
+    ("seconds since 1970-01-01 UTC", 1000, '"milliseconds since 1970-01-01 UTC"'),
+    # Unix seconds under a form of milliseconds: was "average the file to 30 minutes"
+    ("milliseconds since 1970-01-01 UTC", 1, '"seconds since 1970-01-01 UTC"'),
+])
+def test_counts_in_another_unit_are_named_by_the_unit(tmp_path, time_format, scale, other):
+    """Counts whose median step in the format's unit gives records less than a minute or
+    more than a day apart are refused naming the unit in which they are 30 minutes
+    apart (review51). Expected counts computed with Python's datetime."""
+    frame, ends = _records()
+    unix = [int((e.to_pydatetime() - timedelta(hours=1) - datetime(1970, 1, 1))
+                .total_seconds()) * scale for e in ends]
+    path = _write(tmp_path, [str(count) for count in unix], frame)
+    with pytest.raises(TimestampError, match="counted in .* they are 30 minutes apart: set "
+                                             rf"\[input\] time_format = {other}"):
+        _read(path, time_format=time_format)
+
+
 def test_counted_stamps_with_a_decimal_comma(tmp_path):
     """A spreadsheet of a comma locale writes day numbers "44348,020833" (Microsoft's
     1900 date system (m)); "44,348" could group thousands and is no count."""
