@@ -12,12 +12,14 @@ reference. pandas writes an integer column holding a missing value as float64 ("
 """
 from datetime import datetime, timedelta
 
+import numpy as np
 import pandas as pd
 import pytest
 from test_robustness_layouts35 import _records  # invented records of 1-10 June 2021
 from test_robustness_layouts36 import MAPPING, SITE
 from test_robustness_layouts37 import _assert_all
 
+from fluxpart import footers
 from fluxpart.counted_time import counted_form, counted_stamps
 from fluxpart.errors import InputFileError, NonMonotonicTimestampError, TimestampError
 from fluxpart.io import read_table
@@ -256,6 +258,13 @@ def test_records_opening_with_a_site_name_are_no_footer(tmp_path):
     with pytest.raises(InputFileError, match=r"line 481 \('QM,.*has 5 fields where the "
                                               r"header has 7; a record cut short"):
         _read(path)
+    # stamps opening with a month's name (strptime's %b), the block a month after the
+    # record above it: a time of day marks them as records
+    text = ["stamp,co2,sw,t_air", "May 31 2021 23:30,1.0,0.0,9.0", "",
+            "Jun 01 2021 00:00,1.1,0.0", "Jun 01 2021 00:30,1.2,0.0"]
+    assert footers.word_footer(text, np.array([2, 4, 5]), [1, 2], 2) == []
+    text[3:] = ["Records written,3", "End of data"]
+    assert footers.word_footer(text, np.array([2, 4, 5]), [1, 2], 2) == [1, 2]
 
 
 def test_words_without_a_blank_line_or_among_the_records_stay_refused(tmp_path):
