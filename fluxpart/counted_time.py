@@ -20,6 +20,7 @@ import re
 import numpy as np
 import pandas as pd
 
+from .config import setting_text
 from .errors import TimestampError
 
 #: seconds of each unit the form names (CF conventions, section 4.4, after UDUNITS (m))
@@ -31,6 +32,8 @@ _FORM = re.compile(
     r"(?P<date>\d{4}-\d{1,2}-\d{1,2})"
     r"(?:[ T](?P<time>\d{1,2}:\d{2}(?::\d{2}(?:\.\d+)?)?))?"
     r"\s*(?P<clock>UTC|GMT|Z|[+-]\d{1,2}(?::?\d{2})?)?\s*", re.IGNORECASE)
+#: a format that means to count time since a date, well formed or not
+_SINCE = re.compile(r"\s*\S+\s+since(\s|$)", re.IGNORECASE)
 
 
 def counted_form(time_format: str):
@@ -51,17 +54,27 @@ def counted_form(time_format: str):
     Raises
     ------
     TimestampError
-        The reference date or time names no instant (2021-02-30, 25:00).
+        The reference date or time names no instant (2021-02-30, 25:00), the clock is
+        no UTC offset (beyond 14 hours, or 60 minutes or more), or the format counts
+        time "since" a date but is not of the form (a unit of weeks, a date written
+        30.12.1899).
 
     References
     ----------
     Eaton, B. et al. NetCDF Climate and Forecast (CF) Metadata Conventions, section 4.4
     "Time Coordinate": units of the form "<unit> since <reference date and time>" (m).
+    UTC offsets in civil use lie from -12:00 to +14:00 (IANA time zone database (m)).
     """
     if not isinstance(time_format, str):
         return None
     match = _FORM.fullmatch(time_format)
     if match is None:
+        if "%" not in time_format and _SINCE.match(time_format):
+            raise TimestampError(
+                f"[input] time_format = {time_format!r} cannot be used: a count of time is "
+                "read as \"<unit> since <YYYY-MM-DD>[ hh:mm[:ss]][ <clock>]\" with a unit of "
+                "days, hours, minutes, seconds or milliseconds and a clock of UTC, Z or "
+                "an offset such as +01:00 (e.g. \"days since 1899-12-30\")")
         return None
     unit = match["unit"].lower().rstrip("s")
     written = match["date"] + (" " + match["time"] if match["time"] else "")
@@ -78,6 +91,11 @@ def counted_form(time_format: str):
         else:
             sign, digits = clock[0], clock[1:].replace(":", "")
             hours, minutes = (digits[:-2], digits[-2:]) if len(digits) > 2 else (digits, "00")
+            if int(hours) > 14 or int(minutes) > 59:
+                raise TimestampError(
+                    f"[input] time_format = {time_format!r} cannot be used: {clock!r} is no "
+                    "UTC offset (offsets in use lie from -12:00 to +14:00; write it as "
+                    "+hh:mm)")
             clock = f"{sign}{int(hours):02d}:{minutes}"
     return _UNIT_SECONDS[unit], reference, clock
 
@@ -112,12 +130,12 @@ def counted_stamps(text: pd.Series, time_format: str) -> tuple[pd.Series, str, n
     day 1 is 1900-01-01 and the count keeps a 29 February 1900 that never was, so from
     March 1900 on day n is 1899-12-30 + n days) or, in Excel's 1904 date system, from
     1904-01-01 (m); Unix time counts seconds since 1970-01-01 00:00 UTC (POSIX.1) (m).
+    Every day is 86 400 s here, as in POSIX time and UDUNITS: no leap second is
+    counted, so a count of a clock that counts them (GPS time, 18 s ahead of UTC since
+    2017 (m)) is read that many seconds late.
     """
     seconds, reference, clock = counted_form(time_format)
-    # a decimal comma (a spreadsheet of a comma locale): one comma before other than
-    # three digits, so that "44,197" (thousands grouped, or 44.197?) stays no number
-    plain = text.str.strip().str.replace(r"^(-?\d+),(\d{1,2}|\d{4,})$", r"\1.\2", regex=True)
-    numbers = pd.to_numeric(plain, errors="coerce").to_numpy(dtype=float)
+    numbers = counts(text)
     good = np.isfinite(numbers) & (np.abs(numbers * seconds) < 1e11)  # within ~3000 years
     whole = np.zeros(len(numbers), dtype="int64")
     whole[good] = np.round(numbers[good] * seconds).astype("int64")
@@ -125,3 +143,69 @@ def counted_stamps(text: pd.Series, time_format: str) -> tuple[pd.Series, str, n
     written = stamps.dt.strftime("%Y-%m-%d %H:%M:%S") + (clock or "")
     out = text.where(~good, written)
     return out, "%Y-%m-%d %H:%M:%S" + ("%z" if clock else ""), ~good
+
+
+def counts(text: pd.Series) -> np.ndarray:
+    """The number each stamp cell writes, NaN where it writes none.
+
+    A decimal comma (a spreadsheet of a comma locale) is read where one comma stands
+    before other than three digits, so that "44,197" (thousands grouped, or 44.197?)
+    stays no number.
+    """
+    plain = text.str.strip().str.replace(r"^(-?\d+),(\d{1,2}|\d{4,})$", r"\1.\2", regex=True)
+    return pd.to_numeric(plain, errors="coerce").to_numpy(dtype=float)
+
+
+#: The spacing of records [s] the counts' median step must give in the format's unit:
+#: from a minute (the finest records a logger averages) to a day. fluxpart reads 30- and
+#: 60-minute records; a step outside this range is a unit mistaken, not a layout.
+_STEP_RANGE = (60.0, 86400.0)
+
+
+def unit_mismatch(text: pd.Series, time_format: str) -> str:
+    """Why the counts cannot be a tower's records in `time_format`'s unit, or ''.
+
+    Parameters
+    ----------
+    text : pandas.Series of str
+        The stamp text per record.
+    time_format : str
+        A "<unit> since <reference>" format (:func:`counted_form`).
+
+    Returns
+    -------
+    str
+        Where the median step between successive distinct counts, in the format's
+        unit, is shorter than a minute or longer than a day (:data:`_STEP_RANGE`): the
+        step, the spacing it gives, and the unit in which it is 30 or 60 minutes with
+        the setting that reads it (milliseconds counted as seconds put records 20.8
+        days apart; Unix seconds counted as milliseconds, 1.8 s apart); '' otherwise or
+        with fewer than two counts.
+
+    References
+    ----------
+    The lengths of the units: CF conventions, section 4.4, after UDUNITS (m).
+    """
+    seconds, _, _ = counted_form(time_format)
+    numbers = counts(text)
+    steps = np.abs(np.diff(numbers[np.isfinite(numbers)]))
+    steps = steps[steps > 0]
+    if not steps.size:
+        return ""
+    step = float(np.median(steps))
+    spacing = step * seconds
+    if _STEP_RANGE[0] <= spacing <= _STEP_RANGE[1]:
+        return ""
+    written = _FORM.fullmatch(time_format)
+    apart = f"{spacing:.3g} s" if spacing < 60 else f"{spacing / 86400:.3g} days"
+    said = (f"its counts step by a median {step:g} {written['unit'].lower()}, records "
+            f"{apart} apart, which is no record interval of a tower (fluxpart reads 30- and "
+            "60-minute records)")
+    for unit, size in _UNIT_SECONDS.items():
+        minutes = step * size / 60
+        if any(abs(minutes - wanted) <= 0.01 * wanted for wanted in (30, 60)):
+            other = (time_format[:written.start("unit")] + unit + "s"
+                     + time_format[written.end("unit"):])
+            return (f"{said}; counted in {unit}s they are {minutes:.0f} minutes apart: set "
+                    f"[input] time_format = {setting_text(other)} if that is their unit")
+    return f"{said}: check the unit of [input] time_format"

@@ -1387,7 +1387,7 @@ def figure_monthly(drawing, written) -> Figure:
               ("reco_nighttime", "Reco, nighttime method", _VERMILLION, "-", "^"),
               ("reco_daytime", "Reco, daytime method", _ORANGE, "--", "D"),
               ("nee", "NEE", _BLACK, ":", "x")]
-    bars = False
+    bars = clipped = False
     for column, label, colour, line, marker in styles:
         if column not in monthly.columns:
             continue
@@ -1398,6 +1398,8 @@ def figure_monthly(drawing, written) -> Figure:
             low, high = band_edges(values, monthly[sigma].to_numpy(dtype=float), column)
             error = np.vstack([values - low, high - values])
         bars = bars or sigma is not None
+        clipped = clipped or (sigma is not None
+                              and column.split("_", 1)[0] in _NON_NEGATIVE_PREFIXES)
         axis.errorbar(x, values, yerr=error, color=colour, linestyle=line, marker=marker,
                       markersize=5, markerfacecolor="white" if line == "--" else colour,
                       linewidth=1.4, capsize=2, label=label)
@@ -1408,9 +1410,10 @@ def figure_monthly(drawing, written) -> Figure:
     axis.set_title("Monthly sums by both partitioning methods", loc="left")
     # below the axes: inside, it covered the first summer's GPP peak (review43)
     axis.legend(loc="upper center", bbox_to_anchor=(0.5, -0.1), ncols=5, fontsize=8)
-    bar_text = ("error bars are ±1.96 times the monthly 1-sigma written by the run, those of "
-                "GPP and Reco clipped at zero, as neither flux can be negative" if bars
-                else "the run wrote no monthly 1-sigma, so no error bars")
+    bar_text = ("error bars are ±1.96 times the monthly 1-sigma written by the run"
+                + (", those of GPP and Reco clipped at zero, as neither flux can be negative"
+                   if clipped else "")
+                if bars else "the run wrote no monthly 1-sigma, so no error bars")
     caption = ("Solid lines (nighttime method) and dashed lines (daytime method) should run "
                f"close together; a month where they split is uncertain in its partitioning; "
                f"{bar_text}.")

@@ -3,8 +3,11 @@
 A logger program or a data portal may close a file with a few lines about it after a
 blank line ("Records written,17520", "End of data"), and a table saved from a
 spreadsheet may keep the statistics of each column under the records ("mean,...",
-"max,..."). Neither is a record: no line of either holds a date or a time. They are
-dropped with a warning quoting them (layouts38; refused before, naming them).
+"max,..."). Neither is a record (a footer line may name a date, "Written 2021-06-11",
+but it opens with a word and holds no time of day; a statistics row has a word where
+the records have their stamp). They are dropped with a warning quoting them
+(layouts38; refused before, naming them); a block that may be records is refused as
+before.
 """
 from __future__ import annotations
 
@@ -17,14 +20,21 @@ from .timestamps import NULL_STAMP
 
 #: a cell that opens with a letter: a word, no date, time, number or code
 _OPENS_WITH_WORD = re.compile(r"\s*\"?[^\W\d_]")
+#: the word a line opens with, up to a delimiter, blank or quote
+_OPENING_WORD = re.compile(r"\s*\"?([^\W\d_][^\s,;|\"]*)")
+#: a time of day (hh:mm), which a record's stamp holds and a note about the file rarely
+_CLOCK = re.compile(r"(?<!\d)\d{1,2}:\d{2}(?!\d)")
 #: a stamp cell holding a word and no digit ("mean", "Total", "Std. dev."): no stamp
 _WORD_STAMP = re.compile(r"[^\W\d_][^\d]*")
 
 
 def word_footer(text_lines: list, lines: np.ndarray, short: list, last: int) -> list:
     """Rows (0-based, ascending) of the block that ends the file after a blank line, each
-    a line shorter than the header that opens with a word; [] where there is none or it
-    is a single line (the last line alone is judged as a record cut short or a footer).
+    a line shorter than the header that opens with a word; [] where there is none, where
+    it is a single line (the last line alone is judged as a record cut short or a footer),
+    or where a line of it opens with the word the last record above the blank line opens
+    with (a site's name written first on every record) or holds a time of day ("Jun 01
+    2021 00:30", a stamp opening with a month's name): records cut short, not a footer.
 
     Parameters
     ----------
@@ -51,6 +61,12 @@ def word_footer(text_lines: list, lines: np.ndarray, short: list, last: int) -> 
         return []
     above = int(lines[block[-1]]) - 2            # the line above the block, 0-based
     if above < 0 or text_lines[above].strip():
+        return []
+    record = next((line for line in reversed(text_lines[:above]) if line.strip()), "")
+    opening = _OPENING_WORD.match(record)
+    written = [text_lines[lines[row] - 1] for row in block]
+    if any(_CLOCK.search(line) for line in written) or (
+            opening and any(_OPENING_WORD.match(line)[1] == opening[1] for line in written)):
         return []
     return block[::-1]
 

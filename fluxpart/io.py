@@ -78,6 +78,7 @@ from .errors import (
     ImplausibleValueError,
     InputFileError,
     MissingColumnError,
+    NonMonotonicTimestampError,
     TimestampError,
     UnitError,
     read_fault_remedy,
@@ -3727,8 +3728,10 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         kept = len(raw) - summary
         shown = ", ".join(repr(word) for word in dict.fromkeys(stamp_text.iloc[kept:]
                                                                .str.strip()))
-        warnings.append(f"input file {source!r}: its last {summary} line(s) ({int(lines[kept])}"
-                        f" to {int(lines[-1])}: {shown}) have a word for a stamp, no record (a "
+        where = (f"last line ({int(lines[-1])}" if summary == 1 else
+                 f"last {summary} lines ({int(lines[kept])} to {int(lines[-1])}")
+        warnings.append(f"input file {source!r}: its {where}: {shown}) "
+                        f"{'has' if summary == 1 else 'have'} a word for a stamp, no record (a "
                         "footer, or a spreadsheet's statistics under the records): dropped")
         raw = raw.iloc[:kept].reset_index(drop=True)
         stamp_text = stamp_text.iloc[:kept].reset_index(drop=True)
@@ -3801,8 +3804,17 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         duplicate = table.duplicated(keep="first").to_numpy()
     keep = ~duplicate
     stamps = parsed.stamps[keep]
-    check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
-                time_zone=time_zone)
+    try:
+        check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
+                    time_zone=time_zone)
+    except NonMonotonicTimestampError as error:
+        if not newest_first:
+            raise
+        # "comes after" is said of the order read, from the last line up (review51: a
+        # swapped pair in a newest-first file read as two lines in the wrong order)
+        raise NonMonotonicTimestampError(
+            f"input file {source!r} is written newest first, so it is read from its last "
+            f"line up, and in that order {error}") from None
     return {
         "header_line": next(iter(text.splitlines()[rows_before_header:]), "").strip(),
         "under_header": [line.strip() for line in text.splitlines()[

@@ -22,7 +22,7 @@ import numpy as np
 import pandas as pd
 
 from .config import setting_text
-from .counted_time import counted_form, counted_stamps
+from .counted_time import counted_form, counted_stamps, counts, unit_mismatch
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -1303,15 +1303,23 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         # counts of time since a reference ("days since 1899-12-30"): written as stamps
         # and read as such from here on (layouts38; refused before, naming the readings)
         written_format = time_format
+        mismatch = unit_mismatch(text, time_format)
+        if mismatch:
+            # a count in another unit (milliseconds as seconds): named by its unit, not
+            # as stamps beyond 3000 years, 12-hour clocks or 2-second records (review51)
+            raise TimestampError(f"{_time_setting(time_columns)} of {source!r}, time_format "
+                                 f"= {setting_text(written_format)}: {mismatch}")
         text, time_format, no_count = counted_stamps(text, time_format)
         if no_count.any():
             first = int(np.flatnonzero(no_count)[0])
+            number = np.isfinite(counts(text.iloc[first:first + 1]))[0]
             raise TimestampError(
                 f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
-                f"{text.iloc[first]!r}, which is no number of "
-                f"time_format = {setting_text(written_format)}; {int(no_count.sum())} such "
-                "stamp(s): give every record its count, or delete such lines in a copy of "
-                "the file")
+                f"{text.iloc[first]!r}, which is "
+                + ("a count beyond some 3000 years of the reference" if number else
+                   "no number") + f" of time_format = {setting_text(written_format)}; "
+                f"{int(no_count.sum())} such stamp(s): give every record its count, or "
+                "delete such lines in a copy of the file")
     text, whole_numbers = _whole_number_fields(text, time_format)
     if "%p" in time_format and "%H" in time_format and "%I" not in time_format:
         # strptime applies AM/PM to %I only: under %H "01:00 PM" is read as 01:00

@@ -882,6 +882,23 @@ def test_the_cumulative_legend_covers_no_curve_of_a_two_budget_year_record(folde
     assert legend.y0 >= 0
 
 
+def test_monthly_caption_names_clipped_bars_only_where_gpp_or_reco_has_them(folder):
+    """The monthly caption said GPP's and Reco's error bars were clipped at zero where
+    only NEE had a 1-sigma (review51); the daily caption says it only where they are."""
+    monthly = folder["result"].monthly
+    sigma = [c for c in monthly.columns if c.startswith("nee_") and "sigma" in c][:1]
+    assert sigma, list(monthly.columns)
+    drawing = figures.Drawing()
+    with drawing.mpl.rc_context():
+        whole = figures.figure_monthly(drawing, Written(manifest={}, tables={
+            "monthly": monthly}))
+        nee_only = figures.figure_monthly(drawing, Written(manifest={}, tables={
+            "monthly": monthly[["nee", *sigma]]}))
+    assert "those of GPP and Reco clipped at zero" in whole.caption
+    assert "error bars are ±1.96 times" in nee_only.caption
+    assert "clipped" not in nee_only.caption
+
+
 def test_the_monthly_legend_lies_below_the_plotting_area(folder):
     """The monthly sums' legend (five entries) lies below the axes and their date labels,
     by matplotlib's own window extents: in the upper left it covered the first summer's

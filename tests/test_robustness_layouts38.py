@@ -12,14 +12,16 @@ reference. pandas writes an integer column holding a missing value as float64 ("
 """
 from datetime import datetime, timedelta
 
+import numpy as np
 import pandas as pd
 import pytest
 from test_robustness_layouts35 import _records  # invented records of 1-10 June 2021
 from test_robustness_layouts36 import MAPPING, SITE
 from test_robustness_layouts37 import _assert_all
 
+from fluxpart import footers
 from fluxpart.counted_time import counted_form, counted_stamps
-from fluxpart.errors import TimestampError
+from fluxpart.errors import InputFileError, NonMonotonicTimestampError, TimestampError
 from fluxpart.io import read_table
 
 
@@ -70,6 +72,14 @@ def test_counted_forms_and_their_refusals(tmp_path):
     assert counted_form("seconds since 1970-01-01 00:00 +0530")[2] == "+05:30"
     with pytest.raises(TimestampError, match="'2021-02-30' is no date"):
         counted_form("days since 2021-02-30")
+    # UTC offsets in civil use lie from -12:00 to +14:00 (IANA time zone database (m));
+    # '+25' was written into each stamp and refused as stamps not matching "%z" (review51)
+    with pytest.raises(TimestampError, match="'\\+25' is no UTC offset"):
+        counted_form("seconds since 1970-01-01 00:00 +25")
+    # UDUNITS' 'week' is no unit of the form: was read as a strptime format (review51)
+    for written in ("weeks since 2021-06-05", "days since 30.12.1899"):
+        with pytest.raises(TimestampError, match="a count of time is read as"):
+            counted_form(written)
     frame, ends = _records()
     serial = [f"{(e.to_pydatetime() - datetime(1899, 12, 30)) / timedelta(days=1):.6f}"
               for e in ends]
@@ -132,6 +142,22 @@ def test_a_file_newest_first_in_civil_time_is_read_in_the_loggers_order(tmp_path
                for w in report.warnings)
 
 
+def test_a_pair_out_of_place_in_a_newest_first_file_is_named_in_the_order_read(tmp_path):
+    """A file written newest first with two neighbouring lines exchanged: refused, and the
+    message says the file is read from its last line up, in which order one stamp comes
+    after a later one (review51: it said only "comes after", of two lines that in the
+    file stand the other way round). Invented records."""
+    frame, ends = _records()
+    stamps = [f"{e:%Y%m%d%H%M}" for e in ends][::-1]
+    stamps[100], stamps[101] = stamps[101], stamps[100]
+    path = _write(tmp_path, stamps, frame.iloc[::-1])
+    with pytest.raises(NonMonotonicTimestampError,
+                       match=r"is written newest first, so it is read from its last line "
+                             r"up, and in that order stamps go backwards at line 102 .*"
+                             r"'202106082130' comes after '202106082200'"):
+        _read(path)
+
+
 def test_names_in_decomposed_unicode_are_the_settings_columns(tmp_path):
     """Refused before layouts38 as look-alike characters. Unicode Standard Annex #15:
     "ä" as U+00E4 (NFC) and as "a" + U+0308 (NFD) are canonically equivalent (m); the
@@ -163,6 +189,26 @@ def test_names_in_decomposed_unicode_are_the_settings_columns(tmp_path):
                    time_marks="end")
 
 
+@pytest.mark.parametrize("time_format, scale, other", [
+    # Unix time in milliseconds (POSIX.1 counts seconds (m)) under a form of seconds: was
+    # "no number", each count beyond 3000 years
+    ("seconds since 1970-01-01 UTC", 1000, '"milliseconds since 1970-01-01 UTC"'),
+    # Unix seconds under a form of milliseconds: was "average the file to 30 minutes"
+    ("milliseconds since 1970-01-01 UTC", 1, '"seconds since 1970-01-01 UTC"'),
+])
+def test_counts_in_another_unit_are_named_by_the_unit(tmp_path, time_format, scale, other):
+    """Counts whose median step in the format's unit gives records less than a minute or
+    more than a day apart are refused naming the unit in which they are 30 minutes
+    apart (review51). Expected counts computed with Python's datetime."""
+    frame, ends = _records()
+    unix = [int((e.to_pydatetime() - timedelta(hours=1) - datetime(1970, 1, 1))
+                .total_seconds()) * scale for e in ends]
+    path = _write(tmp_path, [str(count) for count in unix], frame)
+    with pytest.raises(TimestampError, match="counted in .* they are 30 minutes apart: set "
+                                             rf"\[input\] time_format = {other}"):
+        _read(path, time_format=time_format)
+
+
 def test_counted_stamps_with_a_decimal_comma(tmp_path):
     """A spreadsheet of a comma locale writes day numbers "44348,020833" (Microsoft's
     1900 date system (m)); "44,348" could group thousands and is no count."""
@@ -186,7 +232,7 @@ def test_counted_stamps_with_a_decimal_comma(tmp_path):
      "'End of data') open with words after a blank line"),
     # a spreadsheet's statistics under the records: "are a summary" and refused before
     (["mean,1,2,3,4,5", "max,6,7,8,9,10"],
-     "its last 2 line(s) (482 to 483: 'mean', 'max') have a word for a stamp, no record"),
+     "its last 2 lines (482 to 483: 'mean', 'max') have a word for a stamp, no record"),
 ])
 def test_a_footer_of_words_or_statistics_is_dropped_and_named(tmp_path, footer, dropped):
     frame, ends = _records()
@@ -198,12 +244,33 @@ def test_a_footer_of_words_or_statistics_is_dropped_and_named(tmp_path, footer, 
     assert any(dropped in w for w in report.warnings), report.warnings
 
 
+def test_records_opening_with_a_site_name_are_no_footer(tmp_path):
+    """Records that open with the site's name (a word) and end cut short after a blank
+    line are records, not a footer about the file: refused as cut short, as before
+    layouts38, not dropped (review51: they were dropped with a footer's warning)."""
+    frame, ends = _records()
+    frame = frame.copy()
+    frame.insert(0, "site", "QM")
+    lines = frame.to_csv(index=False).splitlines()
+    cut = [",".join(line.split(",")[:-2]) for line in lines[-2:]]
+    path = tmp_path / "t.csv"
+    path.write_text("\n".join(lines[:-2] + [""] + cut) + "\n")
+    with pytest.raises(InputFileError, match=r"line 481 \('QM,.*has 5 fields where the "
+                                              r"header has 7; a record cut short"):
+        _read(path)
+    # stamps opening with a month's name (strptime's %b), the block a month after the
+    # record above it: a time of day marks them as records
+    text = ["stamp,co2,sw,t_air", "May 31 2021 23:30,1.0,0.0,9.0", "",
+            "Jun 01 2021 00:00,1.1,0.0", "Jun 01 2021 00:30,1.2,0.0"]
+    assert footers.word_footer(text, np.array([2, 4, 5]), [1, 2], 2) == []
+    text[3:] = ["Records written,3", "End of data"]
+    assert footers.word_footer(text, np.array([2, 4, 5]), [1, 2], 2) == [1, 2]
+
+
 def test_words_without_a_blank_line_or_among_the_records_stay_refused(tmp_path):
     """A short line of words right under the records is judged as before (two such lines
     before the last: a record cut short or a footer, refused); a word stamp among the
     records is no summary under them."""
-    from fluxpart.errors import InputFileError
-
     frame, _ = _records()
     path = tmp_path / "t.csv"
     path.write_text(frame.to_csv(index=False) + "Records written,480\nEnd,of,data\nEnd\n")
