@@ -83,6 +83,7 @@ from .errors import (
     read_fault_remedy,
 )
 from .fixed_width import delimited, fused_header_names, run_together_field
+from .joined_clocks import span_shift_minutes
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .site import Site
@@ -4118,6 +4119,8 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                     "each (joined as they are, the records of one file would lack the "
                     "other's variables); bring the files to one record interval in a copy (average "
                     "the shorter records to the longer interval)")
+            _refuse_clock_shift(without, [part for part in parts if (
+                name, column) not in part["lacking"]], found)
             joined.setdefault(lacks, []).append(name)
             continue
         example = repr(free[0]) if len(free) == 1 else '"..."'
@@ -4208,6 +4211,28 @@ def _same_span_other_stamps(without: list, having: list) -> str:
             step = float(np.median(np.diff(stamps.to_numpy())) / np.timedelta64(1, "m"))
             return f"every {step:g} minutes from {stamps.min()} in {part['source']!r}"
     return ""
+
+
+def _refuse_clock_shift(without: list, having: list, found: str) -> None:
+    """Refuse files of one period holding different columns whose spans begin and end
+    a whole number of records apart (:func:`joined_clocks.span_shift_minutes`): the two
+    loggers' clocks differ, and joined as written every record would pair one logger's
+    values with the other's of another interval."""
+    own = np.concatenate([part["stamps"].to_numpy() for part in without])
+    others = np.concatenate([part["stamps"].to_numpy() for part in having])
+    shift = span_shift_minutes(own, others, _median_step(others) or 0)
+    if shift is None:
+        return
+    side = "after" if shift > 0 else "before"
+    raise MissingColumnError(
+        f"{found}, which covers the same period with its first and last stamps both "
+        f"{abs(shift):g} minutes {side} those of {_file_list([p['source'] for p in having])}: "
+        f"the two loggers' clocks differ by {abs(shift):g} minutes (one on UTC, one on "
+        "local time, or one set off?), and joined by stamp every record would pair the "
+        "values of one file with the other's of another interval; or the loggers ran "
+        f"{abs(shift):g} minutes apart from start to end. Shift the stamps of the file "
+        "whose clock was off in a copy (the loggers' logs tell which; the file holding Rg "
+        "shows its clock against the sun in `fluxpart check` once joined right)")
 
 
 def _grid_offset(without: list, having: list) -> str:
