@@ -69,6 +69,7 @@ from ._validate import (
     single_zip_member,
     unicode_form_hint,
 )
+from .civil_splits import second_pass_head
 from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
 from .comma_fields import field_count, unquoted_decimal_commas
 from .config import Config, setting_text, suggest_key
@@ -982,6 +983,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             "oldest first")
     warnings.extend(_labelled_unit_warnings(parts, mapping, units))
     parts, absent, joined = _fill_lacking(parts, mapping, time_columns, warnings)
+    if time_zone is not None:
+        parts = _second_pass_heads(parts, time_zone, utc_offset, warnings)
     combined = _combine(parts)
     if combined["completed_stamps"] and not joined:      # a join completes every stamp
         warnings.append(f"{combined['completed_stamps']} stamp(s) came from overlapping files "
@@ -4663,6 +4666,31 @@ def _rounding_only(stamps: np.ndarray, sources: np.ndarray, values: dict,
 def _has_decimals(value: float, digits: int) -> bool:
     """True where `value` is written with at most `digits` decimals (within 1e-9)."""
     return abs(value - round(value, digits)) <= 1e-9 * max(1.0, abs(value))
+
+
+def _second_pass_heads(parts: list, time_zone: str, utc_offset: float,
+                       warnings: list) -> list:
+    """Read the repeated autumn hour across civil-time files cut inside it: the stamps
+    heading a file that are that hour's second pass, read as its first in their own
+    file (:func:`civil_splits.second_pass_head`), moved to standard time and named."""
+    order = sorted(range(len(parts)), key=lambda i: (parts[i]["stamps"].min()
+                                                     if len(parts[i]["stamps"]) else
+                                                     pd.Timestamp.max))
+    parts = list(parts)
+    for before, after in zip(order, order[1:], strict=False):
+        stamps = pd.DatetimeIndex(parts[after]["stamps"])
+        head, step = second_pass_head(parts[before]["stamps"], stamps, time_zone,
+                                      utc_offset)
+        if not head:
+            continue
+        moved = stamps[:head] + pd.Timedelta(hours=step)
+        parts[after] = parts[after] | {"stamps": moved.append(stamps[head:])}
+        warnings.append(
+            f"input file {parts[after]['source']!r} begins inside the hour that civil time "
+            f"repeats ([input] time_zone = {setting_text(time_zone)}), whose first pass "
+            f"ends {parts[before]['source']!r}: its first {head} stamp(s) read as the "
+            "second pass (standard time), the files read in time order as one record")
+    return parts
 
 
 def _combine(parts: list) -> dict:

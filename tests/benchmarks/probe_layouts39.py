@@ -394,6 +394,28 @@ def civil_time_files_split_in_the_repeated_hour(folder):
 
 
 @case
+def civil_time_files_split_after_the_first_pass(folder):
+    raw, ends = table()
+    local = civil(ends)
+    raw["stamp"] = local.dt.strftime("%Y%m%d%H%M")
+    cut = np.flatnonzero((local == "2021-10-31 02:00").to_numpy())[1]
+    write(folder / "a.csv", lines(raw.iloc[:cut]))
+    write(folder / "b.csv", lines(raw.iloc[cut:]))
+    toml(folder, "*.csv", time_zone="Europe/Berlin")
+
+
+@case
+def civil_time_restart_repeats_first_pass(folder):
+    raw, ends = table()
+    local = civil(ends)
+    raw["stamp"] = local.dt.strftime("%Y%m%d%H%M")
+    first = np.flatnonzero((local == "2021-10-31 02:00").to_numpy())
+    write(folder / "a.csv", lines(raw.iloc[:first[0] + 2]))
+    write(folder / "b.csv", lines(raw.iloc[first[0]:]))
+    toml(folder, "*.csv", time_zone="Europe/Berlin")
+
+
+@case
 def two_years_in_year_files(folder):
     raw, ends = two_years()
     parts(folder, raw, (ends - pd.Timedelta("30min")).dt.year.to_numpy(), "y_{}.csv")
