@@ -3659,7 +3659,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     rows_before_header += _separator_line(text, delimiter, rows_before_header, path)
     text, rows_before_header, rows_after_header, borrowed = _later_file_layout(
         path, text, first_header, delimiter, rows_before_header, rows_after_header,
-        later_notes)
+        later_notes, time_columns)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
                                    rows_after_header, warnings, note_mark)
@@ -3831,18 +3831,26 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
 
 
 def _later_file_layout(path: Path, text: str, first_header, delimiter: str,
-                       rows_before_header: int, rows_after_header: int, notes
-                       ) -> tuple[str, int, int, int]:
+                       rows_before_header: int, rows_after_header: int, notes,
+                       time_columns=()) -> tuple[str, int, int, int]:
     """``(text, rows_before_header, rows_after_header, lines borrowed)`` of a later file
     that lacks the first file's title lines or header (:mod:`fluxpart.later_files`;
-    its name listed in `notes` under "titles" or "header"; layouts37: refused before);
-    the file's own where it lacks neither. `first_header`: the first file's header line
-    and the lines under it that rows_after_header skips."""
+    its name listed in `notes` under "titles" or "header"; layouts37: refused before),
+    or whose header has more or fewer units lines under it than the first file's
+    (under "units"; layouts39); the file's own where it lacks neither. `first_header`:
+    the first file's header line and the lines under it that rows_after_header skips."""
     if first_header is None:
         return text, rows_before_header, rows_after_header, 0
     header, under = first_header
     text_lines = text.splitlines()
     if next(iter(text_lines[rows_before_header:]), "").strip() == header:
+        first_count = sum(later_files.no_record(line, header, delimiter, time_columns)
+                          for line in under)
+        own = later_files.lines_under_header(text_lines, rows_before_header, delimiter,
+                                             time_columns)
+        if first_count == rows_after_header and own != rows_after_header:
+            notes.setdefault("units", []).append(str(path))
+            return text, rows_before_header, own, 0
         return text, rows_before_header, rows_after_header, 0
     above = later_files.title_lines_lacking(text_lines, header, rows_before_header)
     if above is not None:
@@ -3869,6 +3877,13 @@ def _later_files_warnings(notes: dict, first: dict, rows_before_header: int,
             f"above it than [input] rows_before_header = {rows_before_header} (title lines "
             "written into the first file only?): read from their header line (and without "
             "units lines where none stands under it)")
+    if notes.get("units"):
+        found.append(
+            f"{len(notes['units'])} input file(s) ({_file_list(notes['units'])}) have other "
+            f"lines under the header line of {first['source']!r} than its "
+            f"{len(first['under_header'])} (a units line written by one logger program and "
+            "not by the other?): read past their own such lines, lines as wide as the header "
+            "with no digit in a time column")
     if notes.get("header"):
         width = len(later_files.cells(first["header_line"], delimiter))
         found.append(

@@ -195,6 +195,17 @@ def logger_swap_new_logger_writes_units_line(folder):
 
 
 @case
+def logger_swap_new_logger_drops_units_line(folder):
+    raw, ends = table()
+    cut = (ends > "2021-07-01").to_numpy()
+    text = lines(raw[~cut])
+    text.insert(1, ",".join(p38.UNITS))
+    write(folder / "a.csv", text)
+    write(folder / "b.csv", lines(raw[cut]))
+    toml(folder, "*.csv", rows_after_header=1)
+
+
+@case
 def logger_swap_new_logger_writes_title_and_units(folder):
     raw, ends = table()
     cut = (ends > "2021-07-01").to_numpy()
