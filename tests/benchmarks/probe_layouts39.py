@@ -435,8 +435,14 @@ def two_years_in_year_files(folder):
 
 
 def leap_raw():
+    """The example year as 2024, a leap year: 29 February a copy of the 28th's records."""
     raw, ends = table()
-    ends = pd.Series(pd.date_range("2023-07-01 00:30", periods=len(raw), freq="30min"))
+    day = day_of(ends)
+    february_28 = np.flatnonzero(day == "20210228")
+    order = np.concatenate([np.arange(february_28[-1] + 1), february_28,
+                            np.arange(february_28[-1] + 1, len(raw))])
+    raw = raw.iloc[order].reset_index(drop=True)
+    ends = pd.Series(pd.date_range("2024-01-01 00:30", periods=len(raw), freq="30min"))
     raw["stamp"] = ends.dt.strftime("%Y%m%d%H%M")
     return raw, ends
 
