@@ -1,6 +1,6 @@
 """Layouts of the layouts39 round: a station's files over time. Two loggers' files of one
-period whose clocks differ by whole records, and civil-time files cut inside the hour that
-clocks repeat when daylight saving ends.
+period whose clocks differ by whole records, civil-time files cut inside the hour that
+clocks repeat when daylight saving ends, and a later file with another units line.
 
 Outside facts, each named beside its check: civil time in Europe/Berlin repeats 02:00-03:00
 on 2021-10-31 (CEST, UTC+2, then CET, UTC+1), from the IANA time zone database through
@@ -14,13 +14,14 @@ import numpy as np
 import pandas as pd
 import pytest
 from test_robustness_layouts35 import _records  # invented records of 1-10 June 2021
-from test_robustness_layouts36 import MAPPING, SITE
+from test_robustness_layouts36 import MAPPING, SITE, UNITS_LINE
 from test_robustness_layouts37 import _assert_all
 
 from fluxpart.civil_splits import second_pass_head
 from fluxpart.errors import MissingColumnError
 from fluxpart.io import read_table
 from fluxpart.joined_clocks import span_shift_minutes
+from fluxpart.later_files import lines_under_header, no_record
 
 
 def _read(path, **options):
@@ -103,3 +104,32 @@ def test_second_pass_head_leaves_a_repeated_first_pass_alone():
     later = standard[2:].to_numpy()           # 02:00, 02:30 CEST again, then the CET pass
     assert second_pass_head(earlier, later, "Europe/Berlin", 1.0) == (0, 0.0)
     assert second_pass_head(earlier, standard[2:4].to_numpy(), "Europe/Berlin", 1.0) == (2, 1.0)
+
+
+@pytest.mark.parametrize("first_has_units", [False, True])
+def test_a_later_file_with_other_units_lines_is_read_past_them(tmp_path, first_has_units):
+    """Refused before layouts39 (the units line's '-' taken for a stamp, or the later
+    file's first record skipped as a units line): a logger swapped mid-period whose
+    program writes a units line under the header where the old one wrote none, or none
+    where the old one wrote one."""
+    frame, ends = _records()
+    header, *records = frame.to_csv(index=False).splitlines()
+    first = [header, UNITS_LINE, *records[:200]] if first_has_units else [header, *records[:200]]
+    later = [header, *records[200:]] if first_has_units else [header, UNITS_LINE, *records[200:]]
+    (tmp_path / "a.csv").write_text("\n".join(first) + "\n")
+    (tmp_path / "b.csv").write_text("\n".join(later) + "\n")
+    read, report = _read([tmp_path / "a.csv", tmp_path / "b.csv"],
+                         rows_after_header=int(first_has_units))
+    _assert_all(read, frame, ends)
+    assert any("other lines under the header line" in w for w in report.warnings)
+
+
+def test_a_units_line_is_told_from_a_record_by_its_time_cell():
+    header = "stamp,co2,sw"
+    assert no_record("-,umol m-2 s-1,W m-2", header, ",", ("stamp",))
+    assert no_record("TS,Avg,Avg", header, ",", ("stamp",))
+    # a record whose every value is missing still writes its stamp's digits
+    assert not no_record("202106010030,NAN,NAN", header, ",", ("stamp",))
+    assert not no_record("-,umol m-2 s-1", header, ",", ("stamp",))      # narrower
+    assert lines_under_header([header, "-,a,b", "202106010030,1.0,2.0"], 0, ",",
+                              ("stamp",)) == 1
