@@ -14,8 +14,11 @@ matches the glob, civil time, leap days, an interval that changes. Its truth is 
 frame (records a case leaves out missing) or the reading of the same records written as one
 plain file (``canonical``). For the network cases it runs ``fluxpart batch``.
 
-One line a case: ``right``, ``refused`` (one ``error:`` line), ``WRONG`` (read, but a stamp
-or value differs) or ``CRASH``; the last line counts each class.
+Then ``fluxpart check`` and ``fluxpart run`` in a fresh process (``probe_layouts38``'s
+``commands_agree``: a refusal is one ``error:`` line; a case whose truth is the example's
+frame must give the example run's ``timeseries`` and ``annual`` values). One line a case:
+``right``, ``refused`` (one ``error:`` line), ``WRONG`` (read, but a stamp or value differs,
+or the run's table) or ``CRASH``; the last line counts each class.
 """
 import os
 import shutil
@@ -56,6 +59,14 @@ def parts(folder, raw, keys, pattern="q_{}.csv", header=True):
     """One file a value of `keys` (a per-record array), named by `pattern`."""
     for key in pd.unique(keys):
         write(folder / pattern.format(key), lines(raw[keys == key], header=header))
+
+
+def monthly(folder, pattern="q_{:02d}.csv"):
+    """The example as month files; returns its records and each one's month."""
+    raw, ends = table()
+    month = month_of(ends)
+    parts(folder, raw, month, pattern)
+    return raw, month
 
 
 def canonical(folder, raw, **inputs):
@@ -99,9 +110,7 @@ def daily_files_in_month_folders(folder):
 
 @case
 def monthly_files_one_month_missing(folder):
-    raw, ends = table()
-    month = month_of(ends)
-    parts(folder, raw, month, "q_{:02d}.csv")
+    raw, month = monthly(folder)
     (folder / "q_05.csv").unlink()
     toml(folder, "q_*.csv")
     return month == 5
@@ -109,16 +118,13 @@ def monthly_files_one_month_missing(folder):
 
 @case
 def monthly_files_listed_out_of_order(folder):
-    raw, ends = table()
-    parts(folder, raw, month_of(ends), "q_{:02d}.csv")
+    monthly(folder)
     toml(folder, [f"q_{m:02d}.csv" for m in (7, 1, 12, 3, 2, 4, 5, 6, 11, 8, 9, 10)])
 
 
 @case
 def monthly_files_one_header_only(folder):
-    raw, ends = table()
-    month = month_of(ends)
-    parts(folder, raw, month, "q_{:02d}.csv")
+    raw, month = monthly(folder)
     write(folder / "q_08.csv", lines(raw.iloc[:0]))
     toml(folder, "q_*.csv")
     return month == 8
@@ -126,109 +132,98 @@ def monthly_files_one_header_only(folder):
 
 @case
 def monthly_files_crlf_in_one(folder):
-    raw, ends = table()
-    month = month_of(ends)
-    parts(folder, raw, month, "q_{:02d}.csv")
+    raw, month = monthly(folder)
     write(folder / "q_04.csv", lines(raw[month == 4]), ending="\r\n")
     toml(folder, "q_*.csv")
 
 
+UNITS_LINE = ",".join(p38.UNITS)
+
+
+def swapped(folder, later=lambda text: text, first=lambda text: text, **inputs):
+    """The example split at 1 July, where a logger was swapped: the old logger's lines as
+    `first` and the new one's as `later` rewrite them (lists of lines)."""
+    raw, ends = table()
+    cut = (ends > "2021-07-01").to_numpy()
+    write(folder / "a.csv", first(lines(raw[~cut])))
+    write(folder / "b.csv", later(lines(raw[cut])))
+    toml(folder, "*.csv", **inputs)
+
+
+def renamed(text, old, new):
+    return [text[0].replace(old, new), *text[1:]]
+
+
+def replaced(text, old, new):
+    return [line.replace(old, new) for line in text]
+
+
+def with_lines(text, *added):
+    return [text[0], *added, *text[1:]]
+
+
 @case
 def logger_swap_column_order(folder):
-    raw, ends = table()
-    cut = ends > "2021-07-01"
-    write(folder / "a.csv", lines(raw[~cut]))
-    write(folder / "b.csv", lines(raw[cut][list(raw.columns[::-1])]))
-    toml(folder, "*.csv")
+    def reversed_columns(text):
+        return [",".join(line.split(",")[::-1]) for line in text]
+
+    swapped(folder, reversed_columns)
 
 
 @case
 def logger_swap_other_missing_code_declared(folder):
-    raw, ends = table()
-    cut = (ends > "2021-07-01").to_numpy()
-    later = raw[cut].replace("-9999", "-6999")
-    write(folder / "a.csv", lines(raw[~cut]))
-    write(folder / "b.csv", lines(later))
-    toml(folder, "*.csv", missing=[-9999, -6999])
+    swapped(folder, lambda text: replaced(text, "-9999", "-6999"), missing=[-9999, -6999])
 
 
 @case
 def logger_swap_other_missing_code_undeclared(folder):
-    raw, ends = table()
-    cut = (ends > "2021-07-01").to_numpy()
-    write(folder / "a.csv", lines(raw[~cut]))
-    write(folder / "b.csv", lines(raw[cut].replace("-9999", "-7999")))
-    toml(folder, "*.csv")
+    swapped(folder, lambda text: replaced(text, "-9999", "-7999"))
     return "refused"
 
 
 @case
 def logger_swap_renamed_column_other_names(folder):
-    raw, ends = table()
-    cut = (ends > "2021-07-01").to_numpy()
-    write(folder / "a.csv", lines(raw[~cut]))
-    write(folder / "b.csv", lines(raw[cut].rename(columns={"co2_net": "co2_net_v2"})))
-    toml(folder, "*.csv")
+    swapped(folder, lambda text: renamed(text, "co2_net", "co2_net_v2"))
     text = (folder / "site.toml").read_text()
     (folder / "site.toml").write_text(text + '\n[input.other_names]\nnee = ["co2_net_v2"]\n')
 
 
 @case
 def logger_swap_renamed_column_unmapped(folder):
-    raw, ends = table()
-    cut = (ends > "2021-07-01").to_numpy()
-    write(folder / "a.csv", lines(raw[~cut]))
-    write(folder / "b.csv", lines(raw[cut].rename(columns={"fric_vel": "ustar_sonic2"})))
-    toml(folder, "*.csv")
+    swapped(folder, lambda text: renamed(text, "fric_vel", "ustar_sonic2"))
     return "refused"
 
 
 @case
 def logger_swap_new_logger_writes_units_line(folder):
-    raw, ends = table()
-    cut = (ends > "2021-07-01").to_numpy()
-    write(folder / "a.csv", lines(raw[~cut]))
-    text = lines(raw[cut])
-    text.insert(1, ",".join(p38.UNITS))
-    write(folder / "b.csv", text)
-    toml(folder, "*.csv")
+    swapped(folder, lambda text: with_lines(text, UNITS_LINE))
 
 
 @case
 def logger_swap_new_logger_drops_units_line(folder):
-    raw, ends = table()
-    cut = (ends > "2021-07-01").to_numpy()
-    text = lines(raw[~cut])
-    text.insert(1, ",".join(p38.UNITS))
-    write(folder / "a.csv", text)
-    write(folder / "b.csv", lines(raw[cut]))
-    toml(folder, "*.csv", rows_after_header=1)
+    swapped(folder, first=lambda text: with_lines(text, UNITS_LINE), rows_after_header=1)
 
 
 @case
 def logger_swap_new_logger_writes_title_and_units(folder):
-    raw, ends = table()
-    cut = (ends > "2021-07-01").to_numpy()
-    text = lines(raw[cut])
-    text[1:1] = [",".join(p38.UNITS)]
-    write(folder / "a.csv", ['"Quillmoor flux logger 2, program v3"'] + lines(raw[~cut])[:1]
-          + [",".join(p38.UNITS)] + lines(raw[~cut])[1:])
-    write(folder / "b.csv", ['"Quillmoor flux logger 2, program v3"'] + text)
-    toml(folder, "*.csv", rows_before_header=1, rows_after_header=1)
+    def titled(text):
+        return ['"Quillmoor flux logger 2, program v3"', *with_lines(text, UNITS_LINE)]
+
+    swapped(folder, titled, titled, rows_before_header=1, rows_after_header=1)
 
 
 @case
 def sensor_added_mid_record(folder):
-    raw, ends = table()
-    cut = (ends > "2021-07-01").to_numpy()
-    later = raw[cut].copy()
-    later.insert(3, "leaf_wet", "0")
-    write(folder / "a.csv", lines(raw[~cut]))
-    write(folder / "b.csv", lines(later))
-    toml(folder, "*.csv")
+    def leaf_wetness(text):
+        return [text[0] + ",leaf_wet"] + [line + ",0" for line in text[1:]]
+
+    swapped(folder, leaf_wetness)
 
 
-def flux_and_met(raw, shift=None, step=None):
+def flux_and_met(folder, shift=None, step=None, names=("flux.csv", "met.csv")):
+    """The example as a flux logger's file and a meteorological logger's, the latter's
+    clock `shift` behind or only every `step`-th record; both written where `names`."""
+    raw = table()[0]
     flux = raw[["stamp", "co2_net", "fric_vel", "co2_grade"]]
     met = raw[["stamp", "sun_in", "air_c", "dryness", "soil_c", "humid"]].copy()
     if shift:
@@ -236,34 +231,32 @@ def flux_and_met(raw, shift=None, step=None):
                         - pd.Timedelta(shift)).dt.strftime("%Y%m%d%H%M")
     if step:
         met = met.iloc[1::step]
+    if names:
+        write(folder / names[0], lines(flux))
+        write(folder / names[1], lines(met))
+        toml(folder, list(names))
     return flux, met
 
 
 @case
 def met_logger_separate_file(folder):
-    flux, met = flux_and_met(table()[0])
-    write(folder / "flux.csv", lines(flux))
-    write(folder / "met.csv", lines(met))
-    toml(folder, ["flux.csv", "met.csv"])
+    flux_and_met(folder)
 
 
 @case
 def met_logger_separate_monthly_files(folder):
-    raw, ends = table()
-    flux, met = flux_and_met(raw)
-    parts(folder, flux, month_of(ends), "flux_{:02d}.csv")
-    parts(folder, met, month_of(ends), "met_{:02d}.csv")
+    flux, met = flux_and_met(folder, names=None)
+    month = month_of(table()[1])
+    parts(folder, flux, month, "flux_{:02d}.csv")
+    parts(folder, met, month, "met_{:02d}.csv")
     toml(folder, "*.csv")
 
 
 @case
 def met_logger_installed_in_july(folder):
-    raw, ends = table()
-    flux, met = flux_and_met(raw)
-    later = (ends > "2021-07-01").to_numpy()
-    write(folder / "flux.csv", lines(flux))
+    flux, met = flux_and_met(folder)
+    later = (table()[1] > "2021-07-01").to_numpy()
     write(folder / "met.csv", lines(met[later]))
-    toml(folder, ["flux.csv", "met.csv"])
     expected = truth(None)
     expected.loc[~later, ["rg", "tair", "vpd", "tsoil", "rh"]] = np.nan
     return expected
@@ -271,28 +264,19 @@ def met_logger_installed_in_july(folder):
 
 @case
 def met_logger_clock_30_min_behind(folder):
-    flux, met = flux_and_met(table()[0], shift="30min")
-    write(folder / "flux.csv", lines(flux))
-    write(folder / "met.csv", lines(met))
-    toml(folder, ["flux.csv", "met.csv"])
+    flux_and_met(folder, shift="30min")
     return "refused"
 
 
 @case
 def met_logger_clock_one_hour_behind(folder):
-    flux, met = flux_and_met(table()[0], shift="1h")
-    write(folder / "flux.csv", lines(flux))
-    write(folder / "met.csv", lines(met))
-    toml(folder, ["flux.csv", "met.csv"])
+    flux_and_met(folder, shift="1h")
     return "refused"
 
 
 @case
 def met_logger_hourly(folder):
-    flux, met = flux_and_met(table()[0], step=2)
-    write(folder / "flux.csv", lines(flux))
-    write(folder / "met.csv", lines(met))
-    toml(folder, ["flux.csv", "met.csv"])
+    flux_and_met(folder, step=2)
     return "refused"
 
 
@@ -318,9 +302,7 @@ def monthly_overlap_one_day_different_values(folder):
 
 @case
 def monthly_file_ends_mid_line(folder):
-    raw, ends = table()
-    month = month_of(ends)
-    parts(folder, raw, month, "q_{:02d}.csv")
+    raw, month = monthly(folder)
     text = lines(raw[month == 3])
     write(folder / "q_03.csv", text[:-1] + [text[-1][:14]], ending="\n")
     (folder / "q_03.csv").write_bytes((folder / "q_03.csv").read_bytes()[:-1])
@@ -330,9 +312,7 @@ def monthly_file_ends_mid_line(folder):
 
 @case
 def monthly_file_partial_record_and_nul_tail(folder):
-    raw, ends = table()
-    month = month_of(ends)
-    parts(folder, raw, month, "q_{:02d}.csv")
+    raw, month = monthly(folder)
     text = lines(raw[month == 6])
     data = ("\n".join(text[:-1]) + "\n" + text[-1][:20]).encode() + b"\0" * 4096
     (folder / "q_06.csv").write_bytes(data)
@@ -342,8 +322,7 @@ def monthly_file_partial_record_and_nul_tail(folder):
 
 @case
 def stray_notes_file_matches_glob(folder):
-    raw, ends = table()
-    parts(folder, raw, month_of(ends), "q_{:02d}.csv")
+    monthly(folder)
     (folder / "q_notes.csv").write_text("date,note\n2021-03-04,replaced the analyser filter\n")
     toml(folder, "q_*.csv")
     return "refused"
@@ -351,25 +330,21 @@ def stray_notes_file_matches_glob(folder):
 
 @case
 def stray_copy_of_a_month_matches_glob(folder):
-    raw, ends = table()
-    month = month_of(ends)
-    parts(folder, raw, month, "q_{:02d}.csv")
+    raw, month = monthly(folder)
     shutil.copy(folder / "q_09.csv", folder / "q_09 - copy.csv")
     toml(folder, "q_*.csv")
 
 
 @case
 def stray_empty_file_matches_glob(folder):
-    raw, ends = table()
-    parts(folder, raw, month_of(ends), "q_{:02d}.csv")
+    monthly(folder)
     (folder / "q_upload.csv").write_bytes(b"")
     toml(folder, "q_*.csv")
 
 
 @case
 def same_file_listed_twice(folder):
-    raw, ends = table()
-    parts(folder, raw, month_of(ends), "q_{:02d}.csv")
+    monthly(folder)
     toml(folder, [f"q_{m:02d}.csv" for m in range(1, 13)] + ["q_06.csv"])
 
 
@@ -393,37 +368,31 @@ def civil_time_monthly_files(folder):
     toml(folder, "q_*.csv", time_zone="Europe/Berlin")
 
 
-@case
-def civil_time_files_split_in_the_repeated_hour(folder):
+def civil_cut(folder, at, occurrence, back=0):
+    """The example in civil time cut into two files at `occurrence` (0 or 1) of the civil
+    stamp `at`, the second file starting `back` records earlier (written twice)."""
     raw, ends = table()
     local = civil(ends)
     raw["stamp"] = local.dt.strftime("%Y%m%d%H%M")
-    cut = np.flatnonzero((local == "2021-10-31 02:30").to_numpy())[1]
-    write(folder / "a.csv", lines(raw.iloc[:cut]))
+    cut = np.flatnonzero((local == at).to_numpy())[occurrence]
+    write(folder / "a.csv", lines(raw.iloc[:cut + back]))
     write(folder / "b.csv", lines(raw.iloc[cut:]))
     toml(folder, "*.csv", time_zone="Europe/Berlin")
+
+
+@case
+def civil_time_files_split_in_the_repeated_hour(folder):
+    civil_cut(folder, "2021-10-31 02:30", 1)
 
 
 @case
 def civil_time_files_split_after_the_first_pass(folder):
-    raw, ends = table()
-    local = civil(ends)
-    raw["stamp"] = local.dt.strftime("%Y%m%d%H%M")
-    cut = np.flatnonzero((local == "2021-10-31 02:00").to_numpy())[1]
-    write(folder / "a.csv", lines(raw.iloc[:cut]))
-    write(folder / "b.csv", lines(raw.iloc[cut:]))
-    toml(folder, "*.csv", time_zone="Europe/Berlin")
+    civil_cut(folder, "2021-10-31 02:00", 1)
 
 
 @case
 def civil_time_restart_repeats_first_pass(folder):
-    raw, ends = table()
-    local = civil(ends)
-    raw["stamp"] = local.dt.strftime("%Y%m%d%H%M")
-    first = np.flatnonzero((local == "2021-10-31 02:00").to_numpy())
-    write(folder / "a.csv", lines(raw.iloc[:first[0] + 2]))
-    write(folder / "b.csv", lines(raw.iloc[first[0]:]))
-    toml(folder, "*.csv", time_zone="Europe/Berlin")
+    civil_cut(folder, "2021-10-31 02:00", 0, back=2)
 
 
 @case
@@ -529,7 +498,7 @@ def network_two_sites_share_one_file(folder):
 
 
 # --------------------------------------------------------------------------- judging
-def judge(name, folder, cli):
+def judge(name, folder, base_tables, cli):
     try:
         expected = CASES[name](folder)
     except Exception:        # noqa: BLE001 - the probe's own fault, shown
@@ -559,18 +528,7 @@ def judge(name, folder, cli):
         return "CRASH", traceback.format_exc().strip().splitlines()[-1]
     if not cli:
         return state
-    for verb, args in (("check", ("check", "site.toml")),
-                       ("run", ("run", "site.toml", "--out", "out", "--quiet"))):
-        code, out, err = command(*args, cwd=folder)
-        if "Traceback" in err or code not in (0, 1, 2):
-            return "CRASH", f"{verb} exit {code}: {err.strip().splitlines()[-1]}"
-        errors = [line for line in err.splitlines() if line.startswith("error:")]
-        listed = verb == "check" and code == 1 and "(run stops)" in out
-        if state[0] == "refused" and not listed and (code != 2 or len(errors) != 1):
-            return "CRASH", f"{verb} exit {code} with {len(errors)} error line(s)"
-        if state[0] == "right" and verb == "run" and code != 0:
-            return "WRONG", f"read right but run exit {code}: {err.strip()[-200:]}"
-    return state
+    return p38.commands_agree(state, folder, base_tables if expected is None else {})
 
 
 def judge_batch(folder, want_code, cli):
@@ -592,18 +550,7 @@ def judge_batch(folder, want_code, cli):
 
 
 def main():
-    names = [a for a in sys.argv[1:] if a in CASES] or list(CASES)
-    cli = "--no-cli" not in sys.argv
-    counts = {}
-    for name in names:
-        folder = W / name
-        shutil.rmtree(folder, ignore_errors=True)
-        folder.mkdir(parents=True)
-        state, detail = judge(name, folder, cli)
-        counts[state] = counts.get(state, 0) + 1
-        print(f"{state:8} {name:48} {detail[:230]}", flush=True)
-    print(f"{len(names)} cases: " + ", ".join(f"{v} {k}" for k, v in sorted(counts.items()))
-          + f" (scratch: {W})")
+    p38.probe(CASES, judge, "cases", 48)
 
 
 if __name__ == "__main__":
