@@ -3,7 +3,8 @@ records.
 
 A flux logger's file and a meteorological logger's file of the same period are joined by
 stamp. Where the second logger's clock runs a whole record or more apart from the first
-(a clock left on UTC beside one on local time, or set by hand half an hour off), every
+(a clock left on UTC beside one on local time, or set by hand half an hour off; or
+one logger stamping its records at the interval's start, the other at its end), every
 stamp still falls on the shared grid and the join pairs each flux record with the
 meteorology of another interval, silently. What the stamps show is the span: both loggers
 wrote the same run of records, so their files begin and end the same time apart.
