@@ -403,6 +403,46 @@ def two_years_in_year_files(folder):
     return canonical(folder, raw)
 
 
+def year_files(folder, edit_later=None):
+    """The two years as two files, the second's lines as `edit_later` rewrites them (the
+    records as a frame); returns the canonical folder of the unedited records."""
+    raw, ends = two_years()
+    year = (ends - pd.Timedelta("30min")).dt.year.to_numpy()
+    later = raw[year == 2022]
+    write(folder / "y_2021.csv", lines(raw[year == 2021]))
+    write(folder / "y_2022.csv", lines(edit_later(later, raw) if edit_later else later))
+    toml(folder, "y_*.csv")
+    return canonical(folder, raw)
+
+
+@case
+def two_years_boundary_record_in_both(folder):
+    return year_files(folder, lambda later, raw: pd.concat([raw.iloc[[17519]], later]))
+
+
+@case
+def two_years_boundary_record_in_both_other_values(folder):
+    def rewritten(later, raw):
+        last = raw.iloc[[17519]].copy()
+        last["air_c"] = "-1.50"
+        return pd.concat([last, later])
+
+    year_files(folder, rewritten)
+    return "refused"
+
+
+@case
+def second_year_stamped_at_interval_start(folder):
+    def start_marks(later, raw):
+        later = later.copy()
+        later["stamp"] = (pd.to_datetime(later["stamp"], format="%Y%m%d%H%M")
+                          - pd.Timedelta("30min")).dt.strftime("%Y%m%d%H%M")
+        return later
+
+    year_files(folder, start_marks)
+    return "refused"
+
+
 def leap_raw():
     """The example year as 2024, a leap year: 29 February a copy of the 28th's records."""
     raw, ends = table()
