@@ -958,18 +958,27 @@ def judge(name, folder, base_tables, cli=True):
         missing = LAYOUTS[name](folder)
     except Exception:        # noqa: BLE001 - the probe's own fault, shown
         return "PROBE", traceback.format_exc(limit=1).strip().splitlines()[-1]
-    try:
-        read, report = read_site_config(folder / "site.toml").read()
-        difference = compare(read, truth(missing))
-        warned = len(report.warnings)
-        state = ("WRONG", difference) if difference else ("right", f"{warned} warning(s)")
-    except FluxpartError as error:
-        state = ("refused", str(error).splitlines()[0])
-    except Exception:        # noqa: BLE001 - a crash is what the probe looks for
-        return "CRASH", traceback.format_exc().strip().splitlines()[-1]
-    if not cli:
+    state = reading_state(folder, lambda: truth(missing),
+                          lambda report: f"{len(report.warnings)} warning(s)")
+    if not cli or state[0] == "CRASH":
         return state
     return commands_agree(state, folder, base_tables if missing is None else {})
+
+
+def reading_state(folder, want, said, refusal_due=False):
+    """``(state, detail)`` of reading folder/site.toml in process against the frame
+    `want()`: right (`said(report)` the detail), WRONG, refused or CRASH; a reading where
+    `refusal_due` is WRONG."""
+    try:
+        read, report = read_site_config(folder / "site.toml").read()
+        difference = compare(read, want())
+        if difference or refusal_due:
+            return "WRONG", difference or "read, where a refusal was due: " + said(report)
+        return "right", said(report)
+    except FluxpartError as error:
+        return "refused", str(error).splitlines()[0]
+    except Exception:        # noqa: BLE001 - a crash is what the probe looks for
+        return "CRASH", traceback.format_exc().strip().splitlines()[-1]
 
 
 def commands_agree(state, folder, base_tables):

@@ -33,9 +33,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 if "--dir" not in sys.argv:
     sys.argv += ["--dir", str(Path(__import__("tempfile").mkdtemp(prefix="fluxpart-layouts39-")))]
 import probe_layouts38 as p38  # noqa: E402
-from probe_layouts38 import command, compare, lines, table, toml, truth, write  # noqa: E402
+from probe_layouts38 import command, lines, table, toml, truth, write  # noqa: E402
 
-from fluxpart.errors import FluxpartError  # noqa: E402
 from fluxpart.io import read_site_config  # noqa: E402
 
 CASES = {}
@@ -546,27 +545,24 @@ def judge(name, folder, base_tables, cli):
     if isinstance(expected, str) and expected.startswith("batch"):
         return judge_batch(folder, int(expected.split(":")[1]), cli)
     refusal_expected = isinstance(expected, str) and expected == "refused"
-    try:
-        read, report = read_site_config(folder / "site.toml").read()
+
+    def want():
         if isinstance(expected, tuple):
-            want, _ = read_site_config(expected[0] / "site.toml").read()
-            want.loc[expected[1]] = np.nan
-        elif isinstance(expected, Path):
-            want, _ = read_site_config(expected / "site.toml").read()
-        elif isinstance(expected, pd.DataFrame):
-            want = expected
-        else:
-            want = truth(None if refusal_expected else expected)
-        difference = compare(read, want)
+            frame = read_site_config(expected[0] / "site.toml").read()[0]
+            frame.loc[expected[1]] = np.nan
+            return frame
+        if isinstance(expected, Path):
+            return read_site_config(expected / "site.toml").read()[0]
+        if isinstance(expected, pd.DataFrame):
+            return expected
+        return truth(None if refusal_expected else expected)
+
+    def said(report):
         warned = "; ".join(w.splitlines()[0][:70] for w in report.warnings)[:160]
-        state = (("WRONG", difference) if difference
-                 else ("WRONG", "read, where a refusal was due: " + warned)
-                 if refusal_expected else ("right", f"{len(report.warnings)} w: {warned}"))
-    except FluxpartError as error:
-        state = ("refused", str(error).splitlines()[0])
-    except Exception:        # noqa: BLE001 - a crash is what the probe looks for
-        return "CRASH", traceback.format_exc().strip().splitlines()[-1]
-    if not cli:
+        return f"{len(report.warnings)} w: {warned}"
+
+    state = p38.reading_state(folder, want, said, refusal_expected)
+    if not cli or state[0] == "CRASH":
         return state
     return p38.commands_agree(state, folder, base_tables if expected is None else {})
 
