@@ -69,6 +69,7 @@ from ._validate import (
     single_zip_member,
     unicode_form_hint,
 )
+from .civil_splits import second_pass_head
 from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
 from .comma_fields import field_count, unquoted_decimal_commas
 from .config import Config, setting_text, suggest_key
@@ -84,6 +85,7 @@ from .errors import (
     read_fault_remedy,
 )
 from .fixed_width import delimited, fused_header_names, run_together_field
+from .joined_clocks import span_shift_minutes
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .overlong_values import refuse_overlong_value
@@ -983,6 +985,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             "oldest first")
     warnings.extend(_labelled_unit_warnings(parts, mapping, units))
     parts, absent, joined = _fill_lacking(parts, mapping, time_columns, warnings)
+    if time_zone is not None:
+        parts = _second_pass_heads(parts, time_zone, utc_offset, warnings)
     combined = _combine(parts)
     if combined["completed_stamps"] and not joined:      # a join completes every stamp
         warnings.append(f"{combined['completed_stamps']} stamp(s) came from overlapping files "
@@ -3658,7 +3662,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     rows_before_header += _separator_line(text, delimiter, rows_before_header, path)
     text, rows_before_header, rows_after_header, borrowed = _later_file_layout(
         path, text, first_header, delimiter, rows_before_header, rows_after_header,
-        later_notes)
+        later_notes, time_columns)
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
                                    rows_after_header, warnings, note_mark)
@@ -3841,18 +3845,26 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
 
 
 def _later_file_layout(path: Path, text: str, first_header, delimiter: str,
-                       rows_before_header: int, rows_after_header: int, notes
-                       ) -> tuple[str, int, int, int]:
+                       rows_before_header: int, rows_after_header: int, notes,
+                       time_columns=()) -> tuple[str, int, int, int]:
     """``(text, rows_before_header, rows_after_header, lines borrowed)`` of a later file
     that lacks the first file's title lines or header (:mod:`fluxpart.later_files`;
-    its name listed in `notes` under "titles" or "header"; layouts37: refused before);
-    the file's own where it lacks neither. `first_header`: the first file's header line
-    and the lines under it that rows_after_header skips."""
+    its name listed in `notes` under "titles" or "header"; layouts37: refused before),
+    or whose header has more or fewer units lines under it than the first file's
+    (under "units"; layouts39); the file's own where it lacks neither. `first_header`:
+    the first file's header line and the lines under it that rows_after_header skips."""
     if first_header is None:
         return text, rows_before_header, rows_after_header, 0
     header, under = first_header
     text_lines = text.splitlines()
     if next(iter(text_lines[rows_before_header:]), "").strip() == header:
+        first_count = sum(later_files.no_record(line, header, delimiter, time_columns)
+                          for line in under)
+        own = later_files.lines_under_header(text_lines, rows_before_header, delimiter,
+                                             time_columns)
+        if first_count == rows_after_header and own != rows_after_header:
+            notes.setdefault("units", []).append(str(path))
+            return text, rows_before_header, own, 0
         return text, rows_before_header, rows_after_header, 0
     above = later_files.title_lines_lacking(text_lines, header, rows_before_header)
     if above is not None:
@@ -3879,6 +3891,13 @@ def _later_files_warnings(notes: dict, first: dict, rows_before_header: int,
             f"above it than [input] rows_before_header = {rows_before_header} (title lines "
             "written into the first file only?): read from their header line (and without "
             "units lines where none stands under it)")
+    if notes.get("units"):
+        found.append(
+            f"{len(notes['units'])} input file(s) ({_file_list(notes['units'])}) have other "
+            f"lines under the header line of {first['source']!r} than its "
+            f"{len(first['under_header'])} (a units line written by one logger program and "
+            "not by the other?): read past their own such lines, lines as wide as the header "
+            "with no digit in a time column")
     if notes.get("header"):
         width = len(later_files.cells(first["header_line"], delimiter))
         found.append(
@@ -4132,6 +4151,8 @@ def _fill_lacking(parts: list, mapping: dict, time_columns: tuple,
                     "each (joined as they are, the records of one file would lack the "
                     "other's variables); bring the files to one record interval in a copy (average "
                     "the shorter records to the longer interval)")
+            _refuse_clock_shift(without, [part for part in parts if (
+                name, column) not in part["lacking"]], found)
             joined.setdefault(lacks, []).append(name)
             continue
         example = repr(free[0]) if len(free) == 1 else '"..."'
@@ -4222,6 +4243,29 @@ def _same_span_other_stamps(without: list, having: list) -> str:
             step = float(np.median(np.diff(stamps.to_numpy())) / np.timedelta64(1, "m"))
             return f"every {step:g} minutes from {stamps.min()} in {part['source']!r}"
     return ""
+
+
+def _refuse_clock_shift(without: list, having: list, found: str) -> None:
+    """Refuse files of one period holding different columns whose spans begin and end
+    a whole number of records apart (:func:`joined_clocks.span_shift_minutes`): the two
+    loggers' clocks differ, and joined as written every record would pair one logger's
+    values with the other's of another interval."""
+    own = np.concatenate([part["stamps"].to_numpy() for part in without])
+    others = np.concatenate([part["stamps"].to_numpy() for part in having])
+    shift = span_shift_minutes(own, others, _median_step(others) or 0)
+    if shift is None:
+        return
+    side = "after" if shift > 0 else "before"
+    raise MissingColumnError(
+        f"{found}, which covers the same period with its first and last stamps both "
+        f"{abs(shift):g} minutes {side} those of {_file_list([p['source'] for p in having])}: "
+        f"the two loggers' clocks differ by {abs(shift):g} minutes (one on UTC, one on "
+        "local time, or one set off?) or one stamps its records at the interval's start, "
+        "the other at its end, and joined by stamp every record would pair the "
+        "values of one file with the other's of another interval; or the loggers ran "
+        f"{abs(shift):g} minutes apart from start to end. Shift the stamps of the file "
+        "whose clock was off in a copy (the loggers' logs tell which; the file holding Rg "
+        "shows its clock against the sun in `fluxpart check` once joined right)")
 
 
 def _grid_offset(without: list, having: list) -> str:
@@ -4652,6 +4696,31 @@ def _rounding_only(stamps: np.ndarray, sources: np.ndarray, values: dict,
 def _has_decimals(value: float, digits: int) -> bool:
     """True where `value` is written with at most `digits` decimals (within 1e-9)."""
     return abs(value - round(value, digits)) <= 1e-9 * max(1.0, abs(value))
+
+
+def _second_pass_heads(parts: list, time_zone: str, utc_offset: float,
+                       warnings: list) -> list:
+    """Read the repeated autumn hour across civil-time files cut inside it: the stamps
+    heading a file that are that hour's second pass, read as its first in their own
+    file (:func:`civil_splits.second_pass_head`), moved to standard time and named."""
+    order = sorted(range(len(parts)), key=lambda i: (parts[i]["stamps"].min()
+                                                     if len(parts[i]["stamps"]) else
+                                                     pd.Timestamp.max))
+    parts = list(parts)
+    for before, after in zip(order, order[1:], strict=False):
+        stamps = pd.DatetimeIndex(parts[after]["stamps"])
+        head, step = second_pass_head(parts[before]["stamps"], stamps, time_zone,
+                                      utc_offset)
+        if not head:
+            continue
+        moved = stamps[:head] + pd.Timedelta(hours=step)
+        parts[after] = parts[after] | {"stamps": moved.append(stamps[head:])}
+        warnings.append(
+            f"input file {parts[after]['source']!r} begins inside the hour that civil time "
+            f"repeats ([input] time_zone = {setting_text(time_zone)}), whose first pass "
+            f"ends {parts[before]['source']!r}: its first {head} stamp(s) read as the "
+            "second pass (standard time), the files read in time order as one record")
+    return parts
 
 
 def _combine(parts: list) -> dict:

@@ -15,6 +15,13 @@ only where the reading is unambiguous:
   file's header, none of them one of its names, and at least half of them numbers (a
   record): read under the first file's header, with no title or units lines.
 
+- a file whose header line is the first file's in its place but which has more or fewer
+  lines under it that are no records (a units or aggregation line, written by one logger
+  program and not by the other): as wide as the header, its time columns' cells without
+  a digit (a record's stamp always has one), followed by a record; counted alike in the
+  first file, whose count must be its ``rows_after_header``: read past this file's own
+  such lines (round layouts39).
+
 Anything else is left to the reader, which names the cause. Pure functions of the lines.
 
 References
@@ -57,3 +64,30 @@ def headerless(lines: list, first_header: str, delimiter: str) -> bool:
         return False
     numbers = sum(bool(_NUMBER.fullmatch(field)) for field in fields)
     return numbers * 2 >= len(fields)
+
+
+
+def no_record(line: str, header: str, delimiter: str, time_columns) -> bool:
+    """True where `line` is as wide as `header` and no cell of a time column (all of them
+    named in the header) holds a digit: a units or aggregation line, not a record."""
+    names = cells(header, delimiter)
+    places = [names.index(name) for name in time_columns if name in names]
+    fields = cells(line, delimiter)
+    return (bool(places) and len(places) == len(time_columns) and len(fields) == len(names)
+            and not any(ch.isdigit() for i in places for ch in fields[i]))
+
+
+def lines_under_header(lines: list, header_at: int, delimiter: str, time_columns) -> int:
+    """How many lines (up to 3) directly under the header line at `header_at` are no
+    records (:func:`no_record`) and are followed by a line at least half of whose cells
+    are numbers (rules of the module)."""
+    if header_at >= len(lines):
+        return 0
+    count = 0
+    for line in lines[header_at + 1:header_at + 4]:
+        if not no_record(line, lines[header_at], delimiter, time_columns):
+            break
+        count += 1
+    after = cells(next(iter(lines[header_at + 1 + count:]), ""), delimiter)
+    numbers = sum(bool(_NUMBER.fullmatch(field)) for field in after)
+    return count if numbers * 2 >= len(after) > 1 else 0

@@ -958,17 +958,33 @@ def judge(name, folder, base_tables, cli=True):
         missing = LAYOUTS[name](folder)
     except Exception:        # noqa: BLE001 - the probe's own fault, shown
         return "PROBE", traceback.format_exc(limit=1).strip().splitlines()[-1]
+    state = reading_state(folder, lambda: truth(missing),
+                          lambda report: f"{len(report.warnings)} warning(s)")
+    if not cli or state[0] == "CRASH":
+        return state
+    return commands_agree(state, folder, base_tables if missing is None else {})
+
+
+def reading_state(folder, want, said, refusal_due=False):
+    """``(state, detail)`` of reading folder/site.toml in process against the frame
+    `want()`: right (`said(report)` the detail), WRONG, refused or CRASH; a reading where
+    `refusal_due` is WRONG."""
     try:
         read, report = read_site_config(folder / "site.toml").read()
-        difference = compare(read, truth(missing))
-        warned = len(report.warnings)
-        state = ("WRONG", difference) if difference else ("right", f"{warned} warning(s)")
+        difference = compare(read, want())
+        if difference or refusal_due:
+            return "WRONG", difference or "read, where a refusal was due: " + said(report)
+        return "right", said(report)
     except FluxpartError as error:
-        state = ("refused", str(error).splitlines()[0])
+        return "refused", str(error).splitlines()[0]
     except Exception:        # noqa: BLE001 - a crash is what the probe looks for
         return "CRASH", traceback.format_exc().strip().splitlines()[-1]
-    if not cli:
-        return state
+
+
+def commands_agree(state, folder, base_tables):
+    """`state` where ``fluxpart check`` and ``run`` in `folder` agree with the reading
+    (a refusal as one ``error:`` line, a run of a read layout exit 0 with the tables of
+    `base_tables`); else the CRASH or WRONG they show."""
     for verb, args in (("check", ("check", "site.toml")),
                        ("run", ("run", "site.toml", "--out", "out", "--quiet"))):
         code, out, err = command(*args, cwd=folder)
@@ -983,33 +999,43 @@ def judge(name, folder, base_tables, cli=True):
             if code != 0:
                 return "WRONG", f"read right but run exit {code}: {err.strip()[-200:]}"
             for name, table_ in base_tables.items():
-                if missing is None and not pd.read_parquet(folder / "out" / name).equals(table_):
+                if not pd.read_parquet(folder / "out" / name).equals(table_):
                     return "WRONG", f"{name} differs from the example's run"
     return state
 
 
-def main():
-    names = [a for a in sys.argv[1:] if a in LAYOUTS] or list(LAYOUTS)
+def example_run_tables():
+    """The example's own run's ``timeseries`` and ``annual`` tables (run in W/_example)."""
+    base = W / "_example"
+    base.mkdir(parents=True, exist_ok=True)
+    shutil.copy(EXAMPLE, base)
+    shutil.copy(TREE / "examples" / "quillmoor_grassland.toml", base / "site.toml")
+    command("run", "site.toml", "--out", "out", "--quiet", cwd=base)
+    return {name: pd.read_parquet(base / "out" / name)
+            for name in ("timeseries.parquet", "annual.parquet")}
+
+
+def probe(cases, judge_one, what="layouts", width=55):
+    """Judge the `cases` named on the command line (all where none is), each in a fresh
+    folder of W with ``judge_one(name, folder, base_tables, cli)``; print one line each
+    and the counts."""
+    names = [a for a in sys.argv[1:] if a in cases] or list(cases)
     cli = "--no-cli" not in sys.argv
-    base_tables = {}
-    if cli:
-        base = W / "_example"
-        base.mkdir(parents=True, exist_ok=True)
-        shutil.copy(EXAMPLE, base)
-        shutil.copy(TREE / "examples" / "quillmoor_grassland.toml", base / "site.toml")
-        command("run", "site.toml", "--out", "out", "--quiet", cwd=base)
-        base_tables = {name: pd.read_parquet(base / "out" / name)
-                       for name in ("timeseries.parquet", "annual.parquet")}
+    base_tables = example_run_tables() if cli else {}
     counts = {}
     for name in names:
         folder = W / name
         shutil.rmtree(folder, ignore_errors=True)
         folder.mkdir(parents=True)
-        state, detail = judge(name, folder, base_tables, cli)
+        state, detail = judge_one(name, folder, base_tables, cli)
         counts[state] = counts.get(state, 0) + 1
-        print(f"{state:8} {name:55} {detail[:230]}", flush=True)
-    print(f"{len(names)} layouts: " + ", ".join(f"{v} {k}" for k, v in sorted(counts.items()))
+        print(f"{state:8} {name:{width}} {detail[:230]}", flush=True)
+    print(f"{len(names)} {what}: " + ", ".join(f"{v} {k}" for k, v in sorted(counts.items()))
           + f" (scratch: {W})")
+
+
+def main():
+    probe(LAYOUTS, judge)
 
 
 if __name__ == "__main__":
