@@ -50,6 +50,9 @@ fluxpart's output):
 - clear sky: Haurwitz (1945) global irradiance 1098 cos z exp(-0.057 / cos z) W m-2 (m);
   civil twilight: diffuse skylight 4 exp(h / 1.5 deg) W m-2 for a sun elevation h between
   -6 and 0 deg (order of the 400 lx at sunset (m); form invented).
+  A day-to-day aerosol factor 1 + 0.03 AR(1) on the clear sky and 0.5 % pyranometer noise
+  (invented; without them cloudless dry-season days repeat a year later value for value,
+  which ``check`` rightly names as copied data).
 - clouds: a daily cover from a beta distribution about each site's seasonal mean, a
   record-to-record AR(1) within the day (invented); Kasten and Czeplak (1980) transmission
   1 - 0.75 N^3.4 (m).
@@ -94,11 +97,10 @@ from scipy.signal import lfilter
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
-    FLUXES,
     chosen_variant,
+    fill_errors,
     fmt,
-    misses,
-    print_flux_table,
+    print_scored_row,
     run_sites,
     score_budget_years,
     site_toml,
@@ -250,12 +252,14 @@ def weather(site, idx, rng, variant):
     conc = 4.0
     cover_d = rng.beta(conc * mean_cover, conc * (1 - mean_cover))
     cover = np.clip(cover_d[day] + 0.12 * red_noise(rng, n, 0.92), 0, 1)
+    turbidity = 1 + 0.03 * red_noise(rng, n_days, 0.8)    # day-to-day aerosol (invented)
     clear = np.where(sin_h > 0.01, 1098 * sin_h * np.exp(-0.057 / np.maximum(sin_h, 0.01)),
-                     0.0) * ecc
+                     0.0) * ecc * turbidity[day]
     twilight = np.where((elev > -6) & (elev <= 0), 4.0 * np.exp(elev / 1.5), 0.0)
     if "notwilight" in variant:
         twilight[:] = 0.0
     rg = np.maximum(clear, twilight) * (1 - 0.75 * cover ** 3.4)
+    rg = rg * (1 + 0.005 * rng.standard_normal(n))        # the pyranometer's noise (invented)
     rain_prob = (0.05 + 0.75 * rainy) if site.key == "S" else np.clip(1.2 * cover_d - 0.2, 0, 1)
     rain_d = np.where(rng.uniform(size=n_days) < rain_prob,
                       rng.exponential(site.rain, n_days), 0.0)
@@ -421,79 +425,54 @@ def toml(site, extra_input, columns, units="", processing=""):
     return site_toml(site, extra_input, columns, units, processing, writer="trial_twentieth.py")
 
 
+# Each site's logger layout: its time column, stamp format, which end of the interval the
+# stamp marks, missing code, its own name for each variable and the units that differ from
+# fluxpart's (VPD of N written in kPa, Tair of H in kelvin).
+LAYOUTS = {
+    "D": ("stamp_end", "%Y%m%d%H%M", "end", "-9999",
+          {"nee": "co2_netflux", "rg": "sw_global", "tair": "t_air_2", "rh": "rh_2",
+           "ustar": "ufric", "tsoil": "t_soil_05"}, {}),
+    "N": ("period_begin", "%Y-%m-%d %H:%M", "start", "",
+          {"nee": "fco2", "rg": "rad_short_in", "tair": "airtemp", "vpd": "vpdef",
+           "ustar": "friction_vel", "tsoil": "soiltemp"}, {"vpd": "kPa"}),
+    "S": ("hour_end", "%d/%m/%Y %H:%M", "end", "NaN",
+          {"nee": "nee_ec", "rg": "solar_in", "tair": "t_a", "vpd": "deficit_hpa",
+           "ustar": "u_fric", "tsoil": "t_s5"}, {}),
+    "C": ("ts", "%Y-%m-%dT%H:%M", "end", "-999",
+          {"nee": "flux_c", "rg": "pyrano", "tair": "tc_air", "rh": "humid", "ustar": "ustr",
+           "tsoil": "tc_soil"}, {}),
+    "H": ("begin", "%Y/%m/%d %H:%M", "start", "-9999",
+          {"nee": "netco2", "rg": "globrad", "tair": "tk_air", "rh": "relh", "ustar": "us",
+           "tsoil": "tsoil_5cm"}, {"tair": "K"}),
+    "A": ("datetime_end", "%d/%m/%Y %H:%M", "end", "",
+          {"nee": "co2", "rg": "sw_in_pyr", "tair": "t_screen", "vpd": "vpd_hpa",
+           "ustar": "ustar_sonic", "tsoil": "t_soil_8cm"}, {}),
+}
+DECIMALS = {"nee": 3, "rg": 1, "tair": 2, "rh": 1, "vpd": 2, "ustar": 3, "tsoil": 2}
+TO_UNIT = {"kPa": lambda v: v / 10, "K": lambda v: v + 273.15}   # from hPa and deg C
+
+
 def write_site(site: Site, data: pd.DataFrame, folder: Path, processing="", harvests=()):
-    """Write the site's logger CSV and TOML (each site its own column names, stamps and
-    missing code); return the TOML's file name."""
+    """Write the site's logger CSV (layout of ``LAYOUTS``) and TOML; return the TOML's file
+    name."""
     folder.mkdir(parents=True, exist_ok=True)
-    step = pd.Timedelta(minutes=site.step)
-    start, end = data.index, data.index + step
-    k = site.key
+    time_col, stamp, marks, code, names, units = LAYOUTS[site.key]
+    times = data.index + (pd.Timedelta(minutes=site.step) if marks == "end" else pd.Timedelta(0))
+    frame = pd.DataFrame({time_col: times.strftime(stamp)})
+    for var, col in names.items():
+        values = TO_UNIT[units[var]](data[var]) if var in units else data[var]
+        decimals = DECIMALS[var] + (units.get(var) == "kPa")    # kPa: one more decimal
+        frame[col] = fmt(values, decimals, code)
     if harvests:
         processing = f"events = {list(harvests)!r}\n".replace("'", '"') + processing
-    if k == "D":     # end stamps 202301010030, -9999
-        frame = pd.DataFrame({
-            "stamp_end": end.strftime("%Y%m%d%H%M"), "co2_netflux": fmt(data.nee, 3, "-9999"),
-            "sw_global": fmt(data.rg, 1, "-9999"), "t_air_2": fmt(data.tair, 2, "-9999"),
-            "rh_2": fmt(data.rh, 1, "-9999"), "ufric": fmt(data.ustar, 3, "-9999"),
-            "t_soil_05": fmt(data.tsoil, 2, "-9999")})
-        names = ('time_column = "stamp_end"\ntime_format = "%Y%m%d%H%M"\ntime_marks = "end"\n'
-                 'missing = [-9999]\n',
-                 'nee = "co2_netflux"\nrg = "sw_global"\ntair = "t_air_2"\nrh = "rh_2"\n'
-                 'ustar = "ufric"\ntsoil = "t_soil_05"\n', "")
-    elif k == "N":   # start stamps "2021-01-01 00:00", empty cells, VPD in kPa
-        frame = pd.DataFrame({
-            "period_begin": start.strftime("%Y-%m-%d %H:%M"), "fco2": fmt(data.nee, 3, ""),
-            "rad_short_in": fmt(data.rg, 1, ""), "airtemp": fmt(data.tair, 2, ""),
-            "vpdef": fmt(data.vpd / 10, 3, ""), "friction_vel": fmt(data.ustar, 3, ""),
-            "soiltemp": fmt(data.tsoil, 2, "")})
-        names = ('time_column = "period_begin"\ntime_format = "%Y-%m-%d %H:%M"\n'
-                 'time_marks = "start"\n',
-                 'nee = "fco2"\nrg = "rad_short_in"\ntair = "airtemp"\nvpd = "vpdef"\n'
-                 'ustar = "friction_vel"\ntsoil = "soiltemp"\n', 'vpd = "kPa"\n')
-    elif k == "S":   # hourly, end stamps "13/01/2021 01:00", NaN
-        frame = pd.DataFrame({
-            "hour_end": end.strftime("%d/%m/%Y %H:%M"), "nee_ec": fmt(data.nee, 3, "NaN"),
-            "solar_in": fmt(data.rg, 1, "NaN"), "t_a": fmt(data.tair, 2, "NaN"),
-            "deficit_hpa": fmt(data.vpd, 2, "NaN"), "u_fric": fmt(data.ustar, 3, "NaN"),
-            "t_s5": fmt(data.tsoil, 2, "NaN")})
-        names = ('time_column = "hour_end"\ntime_format = "%d/%m/%Y %H:%M"\n'
-                 'time_marks = "end"\n',
-                 'nee = "nee_ec"\nrg = "solar_in"\ntair = "t_a"\nvpd = "deficit_hpa"\n'
-                 'ustar = "u_fric"\ntsoil = "t_s5"\n', "")
-    elif k == "C":   # end stamps ISO with a T, -999
-        frame = pd.DataFrame({
-            "ts": end.strftime("%Y-%m-%dT%H:%M"), "flux_c": fmt(data.nee, 3, "-999"),
-            "pyrano": fmt(data.rg, 1, "-999"), "tc_air": fmt(data.tair, 2, "-999"),
-            "humid": fmt(data.rh, 1, "-999"), "ustr": fmt(data.ustar, 3, "-999"),
-            "tc_soil": fmt(data.tsoil, 2, "-999")})
-        names = ('time_column = "ts"\ntime_format = "%Y-%m-%dT%H:%M"\ntime_marks = "end"\n'
-                 'missing = [-999]\n',
-                 'nee = "flux_c"\nrg = "pyrano"\ntair = "tc_air"\nrh = "humid"\n'
-                 'ustar = "ustr"\ntsoil = "tc_soil"\n', "")
-    elif k == "H":   # start stamps "2021/01/01 00:30", -9999, air in kelvin
-        frame = pd.DataFrame({
-            "begin": start.strftime("%Y/%m/%d %H:%M"), "netco2": fmt(data.nee, 3, "-9999"),
-            "globrad": fmt(data.rg, 1, "-9999"),
-            "tk_air": fmt(data.tair + 273.15, 2, "-9999"), "relh": fmt(data.rh, 1, "-9999"),
-            "us": fmt(data.ustar, 3, "-9999"), "tsoil_5cm": fmt(data.tsoil, 2, "-9999")})
-        names = ('time_column = "begin"\ntime_format = "%Y/%m/%d %H:%M"\n'
-                 'time_marks = "start"\nmissing = [-9999]\n',
-                 'nee = "netco2"\nrg = "globrad"\ntair = "tk_air"\nrh = "relh"\n'
-                 'ustar = "us"\ntsoil = "tsoil_5cm"\n', 'tair = "K"\n')
-    else:            # A: end stamps "01/07/2023 00:30" day first, empty cells, VPD hPa
-        frame = pd.DataFrame({
-            "datetime_end": end.strftime("%d/%m/%Y %H:%M"), "co2": fmt(data.nee, 3, ""),
-            "sw_in_pyr": fmt(data.rg, 1, ""), "t_screen": fmt(data.tair, 2, ""),
-            "vpd_hpa": fmt(data.vpd, 2, ""), "ustar_sonic": fmt(data.ustar, 3, ""),
-            "t_soil_8cm": fmt(data.tsoil, 2, "")})
-        names = ('time_column = "datetime_end"\ntime_format = "%d/%m/%Y %H:%M"\n'
-                 'time_marks = "end"\n',
-                 'nee = "co2"\nrg = "sw_in_pyr"\ntair = "t_screen"\nvpd = "vpd_hpa"\n'
-                 'ustar = "ustar_sonic"\ntsoil = "t_soil_8cm"\n', "")
-    csv = f"{k.lower()}_tower.csv"
+    csv = f"{site.key.lower()}_tower.csv"
     frame.to_csv(folder / csv, index=False)
-    config = toml(site, f'path = "{csv}"\n' + names[0], names[1], names[2], processing)
-    name = f"site_{k}.toml"
+    missing = f"missing = [{code}]\n" if code not in ("", "NaN") else ""
+    config = toml(site, f'path = "{csv}"\ntime_column = "{time_col}"\n'
+                  f'time_format = "{stamp}"\ntime_marks = "{marks}"\n{missing}',
+                  "".join(f'{var} = "{col}"\n' for var, col in names.items()),
+                  "".join(f'{var} = "{u}"\n' for var, u in units.items()), processing)
+    name = f"site_{site.key}.toml"
     (folder / name).write_text(config)
     return name
 
@@ -501,18 +480,11 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing="", harv
 # ----------------------------------------------------------------------------- scoring
 def fill_parts(part, series, row):
     """The NEE error [g C m-2] of the filled records by night and by day outside the
-    outages of every sensor, and in those outages; the share of records without measured
-    NEE."""
-    factor = GC_PER_UMOL * (part.index[1] - part.index[0]).total_seconds()
+    outages of every sensor, and in those outages (see ``fill_errors``)."""
     night = part.night.to_numpy().astype(bool)
-    kept = series["nee_fill_method"].to_numpy() == "measured"
-    err = series["nee_filled"].to_numpy() - part.nee.to_numpy()
     out = part.outage.to_numpy().astype(bool)
-    row.update({"gap_share": float(np.mean(~kept)),
-                "err_fill_night": factor * np.nansum(err[~kept & night & ~out]),
-                "err_fill_day": factor * np.nansum(err[~kept & ~night & ~out]),
-                "err_fill_outage": factor * np.nansum(err[~kept & out]),
-                "unfilled": int(np.isnan(err).sum())})
+    row.update(fill_errors(part, series, {"night": night & ~out, "day": ~night & ~out,
+                                          "outage": out}))
 
 
 def score(site: Site, truth: pd.DataFrame, out: Path, check):
@@ -522,21 +494,10 @@ def score(site: Site, truth: pd.DataFrame, out: Path, check):
 
 
 def print_row(row):
-    if "nee" not in row:
-        print(f"\n-- {row['site_year']} ({row['period']}): not complete, not scored")
-        return
-    print(f"\n-- {row['site_year']} ({row['period']}, NEE not measured "
-          f"{100 * row['gap_share']:.0f} %) u* found {row['ustar_found']:.3f} planted "
-          f"{row['ustar_planted']:.3f} ({row['ustar_rel']:+.0f} %)")
-    print_flux_table(row)
-    print(f"   NEE error by records: kept {row['err_kept']:+.1f} (u* loss left in them "
-          f"{row['err_kept_loss']:+.1f}); filled night {row['err_fill_night']:+.1f}, day "
-          f"{row['err_fill_day']:+.1f}, power outage {row['err_fill_outage']:+.1f}"
-          + (f"; {row['unfilled']} records unfilled" if row["unfilled"] else ""))
-    print("   by night/day records: " + "; ".join(
-        f"{f} {row[f + '_err_night']:+.1f}/{row[f + '_err_day']:+.1f}" for f in FLUXES[1:]))
-    m = misses(row)
-    print(f"   MISSES: {'; '.join(m) if m else 'none'}")
+    if "nee" in row:
+        fills = (f"filled night {row['err_fill_night']:+.1f}, day {row['err_fill_day']:+.1f}, "
+                 f"power outage {row['err_fill_outage']:+.1f}")
+    print_scored_row(row, fills if "nee" in row else "")
 
 
 def main(argv=None):
