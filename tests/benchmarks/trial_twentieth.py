@@ -37,7 +37,9 @@ Run from the repository root (about a minute per site)::
     python tests/benchmarks/trial_twentieth.py --out /tmp/fluxpart-trial20 [--runs D,S]
         [--seed-offset 1]
 
-``--variant`` switches off planted parts on the same random numbers (see ``VARIANTS``);
+``--variant`` switches off planted parts on the same random numbers (``VARIANTS``:
+``nogaps``, ``nonoise``, ``noloss``, ``notwilight`` (no skylight with the sun below the
+horizon), ``nodim`` (no photosynthesis below Rg 10 W m-2), ``nooutage``);
 ``--planted-ustar`` runs at the planted threshold; ``--processing`` adds lines to every
 site's ``[processing]``.
 
@@ -108,7 +110,7 @@ from trial_scoring import (  # noqa: E402
 )
 
 GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
-VARIANTS = ("nogaps", "nonoise", "noloss", "notwilight", "nooutage")
+VARIANTS = ("nogaps", "nonoise", "noloss", "notwilight", "nodim", "nooutage")
 
 
 @dataclass(frozen=True)
@@ -385,6 +387,8 @@ def simulate(site: Site, variant=frozenset(), seed_offset=0):
            for k in ("met", "eco", "noise", "gaps")}
     met = weather(site, idx, rng["met"], variant)
     gpp, reco, harvests = fluxes(site, idx, met, rng["eco"])
+    if "nodim" in variant:     # diagnosis: no uptake in light below 10 W m-2
+        gpp = np.where(met["rg"] < 10, 0.0, gpp)
     nee = reco - gpp
     night = met["sin_h"] < 0
     ustar = met["ustar"]
