@@ -71,3 +71,22 @@ def test_record_scores_follow_their_definitions():
     assert row["ustar_rel"] == pytest.approx(25.0)
     assert row["err_kept"] == pytest.approx(2.0 * ((1.0 - 2.0) + (4.5 - 4.0) + (-4.0 + 5.0)))
     assert row["err_kept_loss"] == pytest.approx(2.0 * (0.5 - 1) * 2.0)
+
+
+def test_fill_errors_sum_the_filled_records_of_each_group():
+    """Each group's error is the sum over its filled records of (filled − true) × g C per
+    record (1800 s × 12.011e-6 g C per µmol); measured records and other groups do not
+    count; a record left unfilled is counted, not summed."""
+    from trial_scoring import fill_errors
+
+    index = pd.date_range("2021-01-01", periods=4, freq="30min")
+    truth = pd.DataFrame({"nee": [1.0, 2.0, 3.0, 4.0]}, index=index)
+    series = pd.DataFrame({"nee_filled": [1.5, 2.5, 2.0, np.nan],
+                           "nee_fill_method": ["measured", "similar", "similar", "none"]},
+                          index=index)
+    night = np.array([True, True, False, False])
+    out = fill_errors(truth, series, {"night": night, "day": ~night})
+    factor = 1800 * GC_PER_UMOL
+    assert out["err_fill_night"] == pytest.approx(0.5 * factor, rel=1e-12)
+    assert out["err_fill_day"] == pytest.approx(-1.0 * factor, rel=1e-12)
+    assert out["gap_share"] == pytest.approx(0.75) and out["unfilled"] == 1

@@ -104,11 +104,9 @@ from scipy.signal import lfilter
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
-    FLUXES,
     chosen_variant,
     fmt,
-    misses,
-    print_flux_table,
+    print_scored_row,
     run_sites,
     score_budget_years,
     site_toml,
@@ -620,22 +618,11 @@ def score(site: Site, truth: pd.DataFrame, out: Path, check):
 
 
 def print_row(row):
-    if "nee" not in row:
-        print(f"\n-- {row['site_year']} ({row['period']}): not complete, not scored")
-        return
-    print(f"\n-- {row['site_year']} ({row['period']}, NEE not measured "
-          f"{100 * row['gap_share']:.0f} %) u* found {row['ustar_found']:.3f} planted "
-          f"{row['ustar_planted']:.3f} ({row['ustar_rel']:+.0f} %)")
-    print_flux_table(row)
-    print(f"   NEE error by records: kept {row['err_kept']:+.1f} (u* loss left in them "
-          f"{row['err_kept_loss']:+.1f}); filled night {row['err_fill_night']:+.1f}, day "
-          f"{row['err_fill_day']:+.1f} (condensed {row['err_fill_condensed']:+.1f}), outage "
-          f"{row['err_fill_outage']:+.1f}"
-          + (f"; {row['unfilled']} records unfilled" if row["unfilled"] else ""))
-    print("   by night/day records: " + "; ".join(
-        f"{f} {row[f + '_err_night']:+.1f}/{row[f + '_err_day']:+.1f}" for f in FLUXES[1:]))
-    m = misses(row)
-    print(f"   MISSES: {'; '.join(m) if m else 'none'}")
+    if "nee" in row:
+        fills = (f"filled night {row['err_fill_night']:+.1f}, day {row['err_fill_day']:+.1f} "
+                 f"(condensed {row['err_fill_condensed']:+.1f}), outage "
+                 f"{row['err_fill_outage']:+.1f}")
+    print_scored_row(row, fills if "nee" in row else "")
 
 
 def main(argv=None):

@@ -371,3 +371,40 @@ def score_budget_years(out, truth, key, check, factor, own_parts):
             row.update(night_day_errors(series, part, night, factor))
         rows.append(row)
     return rows
+
+
+def fill_errors(part, series, groups) -> dict:
+    """The share of records without measured NEE (``gap_share``), the NEE error [g C m-2]
+    of the filled records in each group (``err_fill_<name>``; `groups` maps a name to a
+    boolean mask of the records) and the number of records left unfilled (``unfilled``).
+
+    `part`: the truth of a budget year (column ``nee``, umol m-2 s-1, a regular index);
+    `series`: the run's time series on its records (``nee_filled``, ``nee_fill_method``).
+    """
+    factor = 12.011e-6 * (part.index[1] - part.index[0]).total_seconds()
+    filled = series["nee_fill_method"].to_numpy() != "measured"
+    err = series["nee_filled"].to_numpy() - part.nee.to_numpy()
+    out = {"gap_share": float(np.mean(filled)), "unfilled": int(np.isnan(err).sum())}
+    for name, mask in groups.items():
+        out[f"err_fill_{name}"] = factor * np.nansum(err[filled & np.asarray(mask, bool)])
+    return out
+
+
+def print_scored_row(row, fills):
+    """Print a scored row: its u* threshold, flux table, the NEE error of the kept records
+    and then `fills` (the trial's own text on the filled ones), the night/day split of the
+    partitioned fluxes and the targets missed; an incomplete year in one line."""
+    if "nee" not in row:
+        print(f"\n-- {row['site_year']} ({row['period']}): not complete, not scored")
+        return
+    print(f"\n-- {row['site_year']} ({row['period']}, NEE not measured "
+          f"{100 * row['gap_share']:.0f} %) u* found {row['ustar_found']:.3f} planted "
+          f"{row['ustar_planted']:.3f} ({row['ustar_rel']:+.0f} %)")
+    print_flux_table(row)
+    print(f"   NEE error by records: kept {row['err_kept']:+.1f} (u* loss left in them "
+          f"{row['err_kept_loss']:+.1f}); {fills}"
+          + (f"; {row['unfilled']} records unfilled" if row["unfilled"] else ""))
+    print("   by night/day records: " + "; ".join(
+        f"{f} {row[f + '_err_night']:+.1f}/{row[f + '_err_day']:+.1f}" for f in FLUXES[1:]))
+    m = misses(row)
+    print(f"   MISSES: {'; '.join(m) if m else 'none'}")
