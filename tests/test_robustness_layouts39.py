@@ -133,3 +133,25 @@ def test_a_units_line_is_told_from_a_record_by_its_time_cell():
     assert not no_record("-,umol m-2 s-1", header, ",", ("stamp",))      # narrower
     assert lines_under_header([header, "-,a,b", "202106010030,1.0,2.0"], 0, ",",
                               ("stamp",)) == 1
+
+
+@pytest.mark.parametrize("case", ["cut after the first pass's 02:00", "first pass lacks 02:00"])
+def test_a_file_going_back_inside_the_repeated_hour_reads_the_second_pass(tmp_path, case):
+    """Refused before review52 ("stamps go backwards"): a stamp of the repeated hour that
+    a file has not held before but that comes after a later civil stamp (the file begins
+    inside the first pass, or the first pass lost a record) was read as summer time by
+    its first occurrence. Civil time runs forward except where the autumn hour repeats
+    (Europe/Berlin 02:00-03:00 on 2021-10-31, IANA database through zoneinfo), so going
+    back there is the second pass."""
+    frame, ends, paths = _civil_files(tmp_path, "202110310230", 0)
+    if case == "first pass lacks 02:00":
+        gap = frame["stamp"].eq("202110310200").idxmax()       # the first pass's 02:00
+        missing = ends[gap] - pd.Timedelta("30min")             # 00:30 standard time
+        frame, ends = frame.drop(index=gap), ends.delete(gap)
+        frame.to_csv(tmp_path / "one.csv", index=False)
+        paths = [tmp_path / "one.csv"]
+    read, _ = _read(paths, time_zone="Europe/Berlin")
+    if case == "first pass lacks 02:00":
+        assert read.loc[missing].isna().all()               # the lost record, missing
+        read = read.drop(index=missing)
+    _assert_all(read, frame, ends)
