@@ -155,3 +155,24 @@ def test_a_file_going_back_inside_the_repeated_hour_reads_the_second_pass(tmp_pa
         assert read.loc[missing].isna().all()               # the lost record, missing
         read = read.drop(index=missing)
     _assert_all(read, frame, ends)
+
+
+def test_loggers_run_apart_from_start_to_end_are_told_how_to_join(tmp_path):
+    """A meteorological logger started and stopped one record after the flux logger, its
+    clock right, has the spans of a clock 30 minutes off: refused (the stamps cannot tell
+    the two apart). Before review52 the message named only the clock's fix; now it names
+    the records to remove for the other reading, and removing them joins the files."""
+    frame, ends = _records()
+    frame[["stamp", "co2", "us"]].iloc[:-1].to_csv(tmp_path / "flux.csv", index=False)
+    met = frame[["stamp", "sw", "t_air", "vpd"]].iloc[1:]
+    met.to_csv(tmp_path / "met.csv", index=False)
+    paths = [tmp_path / "flux.csv", tmp_path / "met.csv"]
+    with pytest.raises(MissingColumnError, match=r"the first 1 of '[^']*flux\.csv' or the "
+                                                 r"last 1 of '[^']*met\.csv'"):
+        _read(paths)
+    met.iloc[:-1].to_csv(tmp_path / "met.csv", index=False)     # its last record removed
+    read, _ = _read(paths)
+    assert read.index.equals(pd.DatetimeIndex(ends[:-1] - pd.Timedelta("30min"),
+                                              name="time").as_unit(read.index.unit))
+    assert read["rg"].isna().tolist() == [True] + [False] * (len(read) - 1)
+    np.testing.assert_array_equal(read["rg"].to_numpy()[1:], frame["sw"].to_numpy()[1:-1])
