@@ -145,7 +145,8 @@ def dark_as_day(rg, sun_elevation, threshold: float) -> list:
                  f"{1000 * threshold:g} W m-2)" if threshold < 1 else "")
     if threshold < _DEFAULT_THRESHOLD and high < _DEFAULT_THRESHOLD:
         remedy = (f"set [processing] night_rg_threshold = {_DEFAULT_THRESHOLD:g} (the "
-                  "default), above the noise of Rg at night")
+                  f"default), or a value above the {high:.3g} W m-2 of the noise where a "
+                  "lower one is wanted (twilight at high latitudes)")
     else:
         # the default itself inside the noise: an offset to correct (review52: the
         # message asked for the default it already had)

@@ -114,5 +114,10 @@ def test_the_default_inside_deep_nights_noise_asks_for_the_offset_not_the_defaul
     assert f"median {np.median(rg[deep]):.3g} W m-2" in text
     assert f"above the {np.percentile(rg[deep], 99):.3g} W m-2 of its noise" in text
     assert "(the default)" not in text
-    [low] = dark_as_day(np.where(deep, noise / 4, 100.0), elevation, 0.01)
+    quiet = np.where(deep, noise / 4, 100.0)
+    [low] = dark_as_day(quiet, elevation, 0.01)
     assert f"night_rg_threshold = {default:g} (the default)" in low
+    # the value it offers below the default, above the noise's 99th percentile, is quiet
+    above = np.percentile(quiet[deep], 99)
+    assert f"above the {above:.3g} W m-2 of the noise" in low
+    assert dark_as_day(quiet, elevation, 1.01 * above) == []
