@@ -4252,10 +4252,13 @@ def _refuse_clock_shift(without: list, having: list, found: str) -> None:
     values with the other's of another interval."""
     own = np.concatenate([part["stamps"].to_numpy() for part in without])
     others = np.concatenate([part["stamps"].to_numpy() for part in having])
-    shift = span_shift_minutes(own, others, _median_step(others) or 0)
+    step = _median_step(others) or 0
+    shift = span_shift_minutes(own, others, step)
     if shift is None:
         return
     side = "after" if shift > 0 else "before"
+    records = round(abs(shift) / step)
+    earlier, later = ((having, without) if shift > 0 else (without, having))
     raise MissingColumnError(
         f"{found}, which covers the same period with its first and last stamps both "
         f"{abs(shift):g} minutes {side} those of {_file_list([p['source'] for p in having])}: "
@@ -4265,7 +4268,11 @@ def _refuse_clock_shift(without: list, having: list, found: str) -> None:
         "values of one file with the other's of another interval; or the loggers ran "
         f"{abs(shift):g} minutes apart from start to end. Shift the stamps of the file "
         "whose clock was off in a copy (the loggers' logs tell which; the file holding Rg "
-        "shows its clock against the sun in `fluxpart check` once joined right)")
+        "shows its clock against the sun in `fluxpart check` once joined right); where "
+        "the loggers did run apart, remove from a copy the record(s) at one end that only "
+        f"one file holds (the first {records} of "
+        f"{_file_list([p['source'] for p in earlier])} or the last {records} of "
+        f"{_file_list([p['source'] for p in later])}), and the files are joined by stamp")
 
 
 def _grid_offset(without: list, having: list) -> str:

@@ -5,7 +5,7 @@ A logger or a data system that splits its record into month files often writes i
 lines (station, logger, program) into the first file only, or the header into the first
 file only (later files appended to a download, a program that writes the header once per
 card). Read with the first file's ``rows_before_header``, such a file's header or first
-record is taken for a title, and its records for the header. Two rules read them, each
+record is taken for a title, and its records for the header. Three rules read them, each
 only where the reading is unambiguous:
 
 - a file whose header line, character for character (blanks around it aside), is the
@@ -13,8 +13,7 @@ only where the reading is unambiguous:
   read from its own header line;
 - a file with no header at all, whose first line holds as many fields as the first
   file's header, none of them one of its names, and at least half of them numbers (a
-  record): read under the first file's header, with no title or units lines.
-
+  record): read under the first file's header, with no title or units lines;
 - a file whose header line is the first file's in its place but which has more or fewer
   lines under it that are no records (a units or aggregation line, written by one logger
   program and not by the other): as wide as the header, its time columns' cells without
@@ -64,7 +63,6 @@ def headerless(lines: list, first_header: str, delimiter: str) -> bool:
         return False
     numbers = sum(bool(_NUMBER.fullmatch(field)) for field in fields)
     return numbers * 2 >= len(fields)
-
 
 
 def no_record(line: str, header: str, delimiter: str, time_columns) -> bool:

@@ -1652,9 +1652,14 @@ def _civil_to_standard(index: pd.DatetimeIndex, text: pd.Series, time_zone: str,
         raise ConfigError("[input] time_zone needs [site] utc_offset (the zone's standard "
                           "offset)")
     check_time_zone(time_zone, utc_offset, index[0] if len(index) else None)
-    # record order resolves the repeated hour: first occurrence = daylight-saving time
-    occurrence = pd.Series(index).groupby(index).cumcount().to_numpy()
-    first = occurrence == 0
+    # record order resolves the repeated hour: a stamp later than every stamp before it
+    # in the file is daylight-saving time; one at or before a stamp already read is the
+    # second pass, standard time (a file that begins inside the hour, or whose first pass
+    # lacks a record, goes back to a stamp it has not held before: refused when read as
+    # daylight-saving time before review52)
+    values = index.asi8
+    first = np.ones(len(values), dtype=bool)
+    first[1:] = values[1:] > np.maximum.accumulate(values)[:-1]
     try:
         aware = index.tz_localize(time_zone, ambiguous=first, nonexistent="raise")
     except Exception:  # pandas raises its own error type for a nonexistent time

@@ -93,3 +93,31 @@ def test_a_threshold_inside_the_noise_of_deep_night_is_named(grassland):
                       site.latitude, config, 30, sun_elevation=elevation)
     [named] = [f for f in found if "= 1 W m-2 is reached by" in f.message]
     assert named.stage == "night mask" and not named.fatal
+
+
+def test_the_default_inside_deep_nights_noise_asks_for_the_offset_not_the_default():
+    """Before review52 a pyranometer reading 8 W m-2 at deep night (past nautical
+    twilight the sky gives no measurable Rg, Seidelmann 1992 (m)) with a scatter of 2
+    W m-2 was named at the default 10 W m-2, with the remedy "set night_rg_threshold =
+    10 (the default)" it already had. Where the default lies inside the noise, the offset
+    (the deep-night median) and the noise's 99th percentile are named instead."""
+    from fluxpart.night_threshold import DEEP_NIGHT_ELEVATION, dark_as_day
+
+    elevation = np.tile(np.linspace(-40.0, 40.0, 160), 4)
+    deep = elevation <= DEEP_NIGHT_ELEVATION
+    noise = np.random.default_rng(0).normal(0.0, 2.0, elevation.size)
+    rg = np.where(deep, 8.0 + noise, 100.0)
+    default = fluxpart.Config().night_rg_threshold
+    share = (rg[deep] >= default).mean()
+    assert 0.1 <= share < 0.5                   # named here, not by the offset rule
+    [text] = dark_as_day(rg, elevation, default)
+    assert f"median {np.median(rg[deep]):.3g} W m-2" in text
+    assert f"above the {np.percentile(rg[deep], 99):.3g} W m-2 of its noise" in text
+    assert "(the default)" not in text
+    quiet = np.where(deep, noise / 4, 100.0)
+    [low] = dark_as_day(quiet, elevation, 0.01)
+    assert f"night_rg_threshold = {default:g} (the default)" in low
+    # the value it offers below the default, above the noise's 99th percentile, is quiet
+    above = np.percentile(quiet[deep], 99)
+    assert f"above the {above:.3g} W m-2 of the noise" in low
+    assert dark_as_day(quiet, elevation, 1.01 * above) == []

@@ -133,3 +133,46 @@ def test_a_units_line_is_told_from_a_record_by_its_time_cell():
     assert not no_record("-,umol m-2 s-1", header, ",", ("stamp",))      # narrower
     assert lines_under_header([header, "-,a,b", "202106010030,1.0,2.0"], 0, ",",
                               ("stamp",)) == 1
+
+
+@pytest.mark.parametrize("case", ["cut after the first pass's 02:00", "first pass lacks 02:00"])
+def test_a_file_going_back_inside_the_repeated_hour_reads_the_second_pass(tmp_path, case):
+    """Refused before review52 ("stamps go backwards"): a stamp of the repeated hour that
+    a file has not held before but that comes after a later civil stamp (the file begins
+    inside the first pass, or the first pass lost a record) was read as summer time by
+    its first occurrence. Civil time runs forward except where the autumn hour repeats
+    (Europe/Berlin 02:00-03:00 on 2021-10-31, IANA database through zoneinfo), so going
+    back there is the second pass."""
+    frame, ends, paths = _civil_files(tmp_path, "202110310230", 0)
+    if case == "first pass lacks 02:00":
+        gap = frame["stamp"].eq("202110310200").idxmax()       # the first pass's 02:00
+        missing = ends[gap] - pd.Timedelta("30min")             # 00:30 standard time
+        frame, ends = frame.drop(index=gap), ends.delete(gap)
+        frame.to_csv(tmp_path / "one.csv", index=False)
+        paths = [tmp_path / "one.csv"]
+    read, _ = _read(paths, time_zone="Europe/Berlin")
+    if case == "first pass lacks 02:00":
+        assert read.loc[missing].isna().all()               # the lost record, missing
+        read = read.drop(index=missing)
+    _assert_all(read, frame, ends)
+
+
+def test_loggers_run_apart_from_start_to_end_are_told_how_to_join(tmp_path):
+    """A meteorological logger started and stopped one record after the flux logger, its
+    clock right, has the spans of a clock 30 minutes off: refused (the stamps cannot tell
+    the two apart). Before review52 the message named only the clock's fix; now it names
+    the records to remove for the other reading, and removing them joins the files."""
+    frame, ends = _records()
+    frame[["stamp", "co2", "us"]].iloc[:-1].to_csv(tmp_path / "flux.csv", index=False)
+    met = frame[["stamp", "sw", "t_air", "vpd"]].iloc[1:]
+    met.to_csv(tmp_path / "met.csv", index=False)
+    paths = [tmp_path / "flux.csv", tmp_path / "met.csv"]
+    with pytest.raises(MissingColumnError, match=r"the first 1 of '[^']*flux\.csv' or the "
+                                                 r"last 1 of '[^']*met\.csv'"):
+        _read(paths)
+    met.iloc[:-1].to_csv(tmp_path / "met.csv", index=False)     # its last record removed
+    read, _ = _read(paths)
+    assert read.index.equals(pd.DatetimeIndex(ends[:-1] - pd.Timedelta("30min"),
+                                              name="time").as_unit(read.index.unit))
+    assert read["rg"].isna().tolist() == [True] + [False] * (len(read) - 1)
+    np.testing.assert_array_equal(read["rg"].to_numpy()[1:], frame["sw"].to_numpy()[1:-1])
