@@ -129,7 +129,8 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
         Records per screening reason (``kept``, ``missing``, ``out_of_range``, ...),
         without the two that follow the u* threshold (``low_ustar``, ``morning_release``).
     thresholds : pandas.DataFrame
-        The u* table of :attr:`Result.ustar`.
+        The u* table of :attr:`Result.ustar`; ``attrs["setting_notes"]`` holds the warnings
+        about a set threshold or floor (:func:`fluxpart.ustar_stage.threshold_setting_notes`).
     """
     config = canonical_frame.checked_config(config)
     frame, _ = canonical_frame.prepare(frame, site)
@@ -138,6 +139,10 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     _, is_night, screens = screening_stage.geometry_and_screening(frame, site, config, interval)
     table, _, _, _ = ustar_stage.ustar_thresholds(frame, screens.screened, is_night, site,
                                                   config)
+    # a set threshold or floor the night records disagree with, as `run` warns it
+    # (review52: check exited 0 on a floor that moved NEE by 4 sigma)
+    table.attrs["setting_notes"] = tuple(ustar_stage.threshold_setting_notes(
+        frame, screens.screened, is_night, site, config))
     # the reasons decided after the u* threshold (low u*, mornings after calm nights) are
     # not known here: a count of 0 would read as none
     return screens.counts.drop(labels=["low_ustar", "morning_release"], errors="ignore"), table

@@ -189,6 +189,29 @@ def threshold_stage(frame, screened, is_night, site, config) -> UstarStage:
     unused = ustar.unused_threshold_note(table, config.ustar_threshold,
                                          config.ustar_method, Config().ustar_threshold)
     warnings.extend([unused] if unused else [])
+    warnings.extend(threshold_setting_notes(frame, screened, is_night, site, config))
+    warnings.extend(settings_notes.ignored_settings(config))
+    return UstarStage(table, draws, central, scenarios, warnings)
+
+
+def threshold_setting_notes(frame, screened, is_night, site, config) -> list:
+    """Warnings where a set u* threshold or floor disagrees with the night records.
+
+    A fixed `ustar_threshold` the night records reject as too low or far too high, and a
+    `ustar_min_threshold` far above the threshold detected under the canopy's own floor
+    (:mod:`fluxpart.ustar_fixed`). ``fluxpart check`` lists them as ``run`` warns them.
+
+    Parameters
+    ----------
+    frame, screened, is_night, site, config
+        As for :func:`threshold_stage`.
+
+    Returns
+    -------
+    list of str
+        Empty where the settings agree with the records (or set no threshold or floor).
+    """
+    notes = []
     if config.ustar_method == "fixed":
         # a fixed threshold the night records reject as too low (round mistakes24)
         low = ustar_fixed.fixed_threshold_note(
@@ -196,15 +219,14 @@ def threshold_stage(frame, screened, is_night, site, config) -> UstarStage:
             screened["tair"].to_numpy(), is_night, site.latitude, config.ustar_threshold,
             config, ustar.CANOPY_FLOORS[site.canopy] if config.ustar_min_threshold is None
             else config.ustar_min_threshold)
-        warnings.extend([low] if low else [])
+        notes.extend([low] if low else [])
     # a floor far above the night records' threshold (round mistakes43)
     high_floor = ustar_fixed.floor_far_above_note(
         frame.index, screened["nee"].to_numpy(), screened["ustar"].to_numpy(),
         screened["tair"].to_numpy(), is_night, site.latitude, config,
         ustar.CANOPY_FLOORS[site.canopy])
-    warnings.extend([high_floor] if high_floor else [])
-    warnings.extend(settings_notes.ignored_settings(config))
-    return UstarStage(table, draws, central, scenarios, warnings)
+    notes.extend([high_floor] if high_floor else [])
+    return notes
 
 
 class RecordRuns(NamedTuple):

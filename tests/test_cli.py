@@ -48,6 +48,19 @@ def test_check_names_the_months_of_each_u_star_season(example, capsys):
     assert winter and all(row[1:3] == ["winter", "DJF"] for row in winter)
 
 
+def test_check_lists_a_u_star_floor_far_above_the_detected_threshold(example, capsys):
+    """review52: `run` warns of a `ustar_min_threshold` far above the threshold the night
+    records give (0.5 m s-1 on this grassland moved NEE by 4.0 sigma, round mistakes43), but
+    `check` exited 0 without a word of it. It is now listed as a problem (exit 1), naming
+    the setting; the example as written stays clean."""
+    text = example.read_text(encoding="utf-8")
+    example.write_text(text.replace("[processing]\n", "[processing]\nustar_min_threshold = 0.5\n"),
+                       encoding="utf-8")
+    assert main(["check", str(example)]) == 1
+    out = capsys.readouterr().out
+    assert "u* threshold: " in out and "ustar_min_threshold = 0.5 m s-1" in out
+
+
 def test_run_writes_the_result_folder(example, tmp_path, capsys):
     """`fluxpart run` writes every table and a manifest that records the input's SHA-256."""
     out_dir = tmp_path / "out"
