@@ -28,7 +28,7 @@ import numpy as np
 import pandas as pd
 
 from .fingerprint import platform_differences
-from .manifest import CAUTION
+from .manifest import CAUTION, shown_path
 
 __all__ = ["DiffReport", "command_diff", "diff_folders"]
 
@@ -82,7 +82,8 @@ class DiffReport:
 
     def format(self) -> str:
         """The report as text for the command line."""
-        lines = [f"fluxpart diff: {self.first} (first) vs {self.second} (second)"]
+        lines = [f"fluxpart diff: {shown_path(self.first)} (first) vs "
+                 f"{shown_path(self.second)} (second)"]
         if self.same:
             lines.append(f"same: input, settings, site, versions, code, platform and all "
                          f"{self.same_annual} annual values are equal")
