@@ -23,7 +23,13 @@ import warnings
 from pathlib import Path
 
 from . import __version__
-from .errors import ConfigError, FluxpartError, FluxpartWarning, ResourceShortage
+from .errors import (
+    LOADER_MEMORY_WORDS,
+    ConfigError,
+    FluxpartError,
+    FluxpartWarning,
+    ResourceShortage,
+)
 from .manifest import CAUTION, shown_path
 
 __all__ = ["main"]
@@ -970,16 +976,12 @@ try:
 except ImportError:             # not POSIX
     _resource = None
 
-#: What the dynamic loader says (glibc's dlopen (m)) when the address space left is too
-#: small to map a shared library: its segments, its zero-filled pages or its descriptor
-_UNMAPPED_LIBRARY = ("failed to map segment from shared object", "cannot map zero-fill pages",
-                     "cannot allocate memory")
 
 
 def _library_not_loaded(error: ImportError | SystemError) -> str | None:
     """What went wrong where `error` is a library refused its memory, else None.
 
-    An ImportError in the dynamic loader's words (:data:`_UNMAPPED_LIBRARY`); a
+    An ImportError in the dynamic loader's words (:data:`LOADER_MEMORY_WORDS`); a
     SystemError "error return without exception set" raised by the import machinery (a
     compiled module's initialisation that failed to allocate and said nothing: ulimit -v
     300 MB in run, faults36) only under a limit on this process's address space, the one
@@ -987,7 +989,7 @@ def _library_not_loaded(error: ImportError | SystemError) -> str | None:
     """
     text = str(error).lower()
     if isinstance(error, ImportError):
-        return next((words for words in _UNMAPPED_LIBRARY if words in text), None)
+        return next((words for words in LOADER_MEMORY_WORDS if words in text), None)
     if "without exception set" not in text or not _address_space_limited():
         return None
     importing = any(frame.filename.startswith("<frozen importlib")
