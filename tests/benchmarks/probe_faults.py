@@ -36,6 +36,14 @@ runs into one folder; a stale lock of another host; damaged tables and manifests
 to verify; a decimal-comma locale and an unknown TZ (bytes); files dated 2100; hard-linked
 copies; a report folder linked to the user's; a batch killed with -9, on a full disk and
 under ulimit -n.
+
+Round faults37: a result folder named with a line break and a tab in every command's
+output; report under ulimit -v 290-330 MB (memory only, no reinstall hint); what run
+--quiet promises; a batch on a full tmpfs (failure kind, a rerun of the missing sites
+only); SIGTERM and SIGINT during export --netcdf and report; one table replaced by
+another run's under a valid manifest; diff of a folder of release 0.30.0 (a git
+worktree of 605729f under the scratch folder) and a new one; the input's tmpfs unmounted
+lazily (umount -l) while run holds it open.
 """
 import hashlib
 import os
@@ -1291,7 +1299,8 @@ def f_diff_older_release():
 
 def f_input_unmounted_lazily():
     """The input on a file system unmounted lazily (``umount -l``, as a network share
-    that goes away) while run reads it: the run completes from the open file or stops
+    that goes away) while run reads it (the process stopped with SIGSTOP the moment it
+    holds the file open, the share unmounted, the process continued): the run completes from the open file or stops
     with one line naming the input; nothing half-written."""
     share = W / "share"
     share.mkdir(exist_ok=True)
@@ -1315,9 +1324,10 @@ def f_input_unmounted_lazily():
         except OSError:
             held = False
         if held:
+            proc.send_signal(signal.SIGSTOP)     # held still while its share goes away
             break
-        time.sleep(0.002)
     gone = subprocess.run(["umount", "-l", str(share)], capture_output=True).returncode == 0
+    proc.send_signal(signal.SIGCONT)
     stdout, stderr = proc.communicate(timeout=120)
     done = subprocess.CompletedProcess([], proc.returncode, stdout, stderr)
     good = (verify(out, "--input", example.with_suffix(".csv")).returncode
