@@ -548,5 +548,6 @@ def _remove(staging: Path) -> None:
 def command_csv(directory, folder) -> Path:
     """The CSV part of ``fluxpart export DIR --csv FOLDER``; prints what was written."""
     path = write_csv(directory, folder)
-    print(f"wrote {shown_path(f'{path}/')} (CSV tables with {METADATA_NAME}: W3C CSVW, units as UDUNITS-2)")
+    print(f"wrote {shown_path(f'{path}/')} (CSV tables with {METADATA_NAME}: W3C CSVW, "
+          "units as UDUNITS-2)")
     return path

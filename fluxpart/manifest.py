@@ -210,10 +210,11 @@ def shown_path(path) -> str:
     """A path as a command's output shows it: as it is, or quoted where it is ambiguous.
 
     A folder name may hold a line break, a tab or an escape sequence (or bytes that are
-    not UTF-8, kept as lone surrogates and shown as ``\\xNN``): printed as it is, a reader or a log parser sees
-    two lines, or the terminal is rewritten. Such a path is shown ``repr``-quoted, its
-    control characters as Python's escapes, so that each item stays on one line and the
-    name can be told exactly; any other path is shown as it is.
+    not UTF-8, kept as lone surrogates and shown as ``\\xNN``): printed as it is, a
+    reader or a log parser sees two lines, or the terminal is rewritten. Such a path is
+    shown ``repr``-quoted, its control characters as Python's escapes, so that each item
+    stays on one line and the name can be told exactly; any other path is shown as it
+    is (round faults37).
 
     Parameters
     ----------
@@ -223,17 +224,16 @@ def shown_path(path) -> str:
     Returns
     -------
     str
-        ``str(path)`` where every character is printable, else ``repr(str(path))``.
+        The path (bytes that are not UTF-8 as ``\\xNN``, :func:`shown_name`) where
+        every character is printable, else its ``repr``.
 
     References
     ----------
     Python documentation, ``str.isprintable`` and ``repr`` of a str (m); POSIX.1-2017,
     3.170 Filename: any byte but ``/`` and NUL (m).
     """
-    text = str(path)
-    if text.isprintable():
-        return text
-    return repr(shown_name(text))
+    text = shown_name(str(path))
+    return text if text.isprintable() else repr(text)
 
 
 def undecodable_paths(provenance: dict, directory) -> list[str]:

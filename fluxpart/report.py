@@ -1419,6 +1419,7 @@ def command_report(args) -> int:
     finally:
         if collecting:
             gc.enable()
-    print(f"Wrote {shown_path(path)} (figures beside it; open it in any browser, no network needed)")
+    print(f"Wrote {shown_path(path)} (figures beside it; open it in any browser, no network "
+          "needed)")
     print(f"Caution: {CAUTION}")
     return 0

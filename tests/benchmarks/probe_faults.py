@@ -41,9 +41,9 @@ Round faults37: a result folder named with a line break and a tab in every comma
 output; report under ulimit -v 290-330 MB (memory only, no reinstall hint); what run
 --quiet promises; a batch on a full tmpfs (failure kind, a rerun of the missing sites
 only); SIGTERM and SIGINT during export --netcdf and report; one table replaced by
-another run's under a valid manifest; diff of a folder of release 0.30.0 (a git
-worktree of 605729f under the scratch folder) and a new one; the input's tmpfs unmounted
-lazily (umount -l) while run holds it open.
+another run's under a valid manifest; diff of a folder of release 0.30.0 (605729f
+unpacked with git archive under the scratch folder) and a new one; the input's tmpfs
+unmounted lazily (umount -l) while run holds it open.
 """
 import hashlib
 import os
@@ -1023,7 +1023,10 @@ def f_batch_killed_rerun():
 
 def f_batch_full_disk():
     """A batch whose out folder is a tmpfs of 700 kB (room for one site), then the space
-    freed (the tmpfs remounted larger) and the batch run again."""
+    freed (the tmpfs remounted larger) and the batch run again: failures.parquet records
+    the failed sites with kind 'output' (faults37), and the rerun processes only the
+    sites that were missing (the whole site's manifest untouched)."""
+    import pandas as pd
     make_net()
     out = NET / "out"
     out.mkdir()
@@ -1034,16 +1037,23 @@ def f_batch_full_disk():
         done = fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET)
         codes = sites_verify(out)
         left = leftovers(out)
+        whole = sorted(p.name for p in out.iterdir() if (p / "manifest.json").is_file())
+        kinds = (sorted(set(pd.read_parquet(out / "failures.parquet")["kind"]))
+                 if (out / "failures.parquet").is_file() else [])
         _mounted(out, "-o", "remount,size=20m")
+        stamps = {n: (out / n / "manifest.json").stat().st_mtime_ns for n in whole}
         rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+        kept = all((out / n / "manifest.json").stat().st_mtime_ns == t
+                   for n, t in stamps.items())
         after = sites_verify(out)
     finally:
         subprocess.run(["umount", str(out)])
     record("a batch into a disk that fills (700 kB tmpfs), then space freed and rerun",
-           one_line(done) and all(c == 0 for c in codes) and not left
-           and rerun.returncode == 0 and after == [0] * 4,
+           one_line(done) and all(c == 0 for c in codes) and not left and kinds == ["output"]
+           and 0 < len(whole) < 4 and kept and rerun.returncode == 0 and after == [0] * 4,
            f"exit {done.returncode} {errlines(done)[:1]!r:.150}, {len(codes)} sites whole, "
-           f"left {left}, rerun {rerun.returncode}, verify {after}")
+           f"kinds {kinds}, left {left}, rerun {rerun.returncode} "
+           f"{rerun.stdout.splitlines()[:1]!r:.100}, whole kept {kept}, verify {after}")
 
 
 def f_batch_open_files():
@@ -1195,39 +1205,6 @@ def f_run_quiet_promise():
            f"{promise}")
 
 
-def f_batch_full_disk_kind():
-    """A batch whose out folder fills (a 700 kB tmpfs): failures.parquet records the
-    failed sites with kind 'output'; after space is freed, a rerun processes only the
-    sites that were missing."""
-    import pandas as pd
-    make_net()
-    out = NET / "out"
-    out.mkdir()
-    if not _mounted(out, "-t", "tmpfs", "-o", "size=700k", "tmpfs"):
-        record("a batch into a full disk: kind and rerun", False, "mount refused: not probed")
-        return
-    try:
-        done = fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET)
-        whole = sorted(p.name for p in out.iterdir() if (p / "manifest.json").is_file())
-        kinds = []
-        if (out / "failures.parquet").is_file():
-            kinds = sorted(set(pd.read_parquet(out / "failures.parquet")["kind"]))
-        _mounted(out, "-o", "remount,size=20m")
-        stamps = {n: (out / n / "manifest.json").stat().st_mtime_ns for n in whole}
-        rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
-        kept = all((out / n / "manifest.json").stat().st_mtime_ns == t
-                   for n, t in stamps.items())
-        after = sites_verify(out)
-    finally:
-        subprocess.run(["umount", str(out)])
-    record("a batch into a full disk: failures kind 'output', rerun of the missing sites only",
-           kinds == ["output"] and rerun.returncode == 0 and kept and after == [0] * 4
-           and 0 < len(whole) < 4,
-           f"exit {done.returncode}, {len(whole)} sites whole, kinds {kinds}, rerun "
-           f"{rerun.returncode} {rerun.stdout.splitlines()[:1]!r:.120}, whole kept {kept}, "
-           f"verify {after}")
-
-
 def f_stop_netcdf_and_report():
     """SIGTERM and SIGINT during ``export --netcdf`` and ``report``, sent once the
     temporary file or staging folder appears: one line, exit 128 + signal, nothing
@@ -1274,15 +1251,18 @@ def f_table_of_other_run_why():
 
 def f_diff_older_release():
     """``diff`` between a folder written by release 0.30.0 (commit 605729f, its final
-    code, run from a git worktree of it) and one written now: differences of the writer are named as
-    metadata, not as numbers."""
+    code, unpacked with git archive) and one written now: differences of the writer are
+    named as metadata, not as numbers."""
     base = W / "rel0300"
     if not (base / "fluxpart").is_dir():
-        made = subprocess.run(["git", "-C", str(TREE), "worktree", "add", "--detach",
-                               str(base), "605729f"], capture_output=True, text=True)
+        base.mkdir(parents=True, exist_ok=True)     # the release's files, no worktree
+        files = subprocess.run(["git", "-C", str(TREE), "archive", "605729f"],
+                               capture_output=True)
+        made = subprocess.run(["tar", "-x", "-C", str(base)], input=files.stdout,
+                              capture_output=True) if files.returncode == 0 else files
         if made.returncode != 0:
             record("diff of a 0.30.0 folder and a new one", False,
-                   f"no worktree of 0.30.0: {made.stderr.strip()[:120]}")
+                   f"0.30.0 not unpacked: {made.stderr.strip()[:120]!r}")
             return
     out = W / "r_old"
     shutil.rmtree(out, ignore_errors=True)
@@ -1300,8 +1280,8 @@ def f_diff_older_release():
 def f_input_unmounted_lazily():
     """The input on a file system unmounted lazily (``umount -l``, as a network share
     that goes away) while run reads it (the process stopped with SIGSTOP the moment it
-    holds the file open, the share unmounted, the process continued): the run completes from the open file or stops
-    with one line naming the input; nothing half-written."""
+    holds the file open, the share unmounted, the process continued): the run completes
+    from the open file or stops with one line naming the input; nothing half-written."""
     share = W / "share"
     share.mkdir(exist_ok=True)
     if not _mounted(share, "-t", "tmpfs", "-o", "size=50m", "tmpfs"):
@@ -1359,7 +1339,7 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_compressed_input_damaged, f_stack_limit,
           # round faults37
           f_path_control_characters, f_report_memory_line, f_run_quiet_promise,
-          f_batch_full_disk_kind, f_stop_netcdf_and_report, f_table_of_other_run_why,
+          f_stop_netcdf_and_report, f_table_of_other_run_why,
           f_diff_older_release, f_input_unmounted_lazily]
 
 if __name__ == "__main__":
