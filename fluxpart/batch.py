@@ -74,6 +74,7 @@ from .manifest import (
     read_manifest,
     seal_intact,
     shown_name,
+    shown_path,
 )
 from .network_layout import (  # noqa: F401 - also this module's names
     NETWORK_DATASET,
@@ -2231,7 +2232,7 @@ def _summary(report: BatchReport) -> str:
     lines += [f"warning: site {outcome.key!r}: {text}" for outcome in report.outcomes
               for text in outcome.warnings]
     datasets = ", ".join(f"{folder}/" for folder in NETWORK_DATASETS.values())
-    lines += ["", f"Wrote {report.out}/ (one result folder per site, {datasets}, "
+    lines += ["", f"Wrote {shown_path(f'{report.out}/')} (one result folder per site, {datasets}, "
               f"{FAILURES_FILE})", f"Caution: {CAUTION}"]
     return "\n".join(lines)
 

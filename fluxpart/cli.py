@@ -23,8 +23,14 @@ import warnings
 from pathlib import Path
 
 from . import __version__
-from .errors import ConfigError, FluxpartError, FluxpartWarning, ResourceShortage
-from .manifest import CAUTION
+from .errors import (
+    LOADER_MEMORY_WORDS,
+    ConfigError,
+    FluxpartError,
+    FluxpartWarning,
+    ResourceShortage,
+)
+from .manifest import CAUTION, shown_path
 
 __all__ = ["main"]
 
@@ -95,6 +101,12 @@ def _format_annual(annual) -> str:
     return "\n".join(lines)
 
 
+#: What ``--quiet`` of demo, run, report and batch silences: the progress display only
+#: (verify's ``--quiet`` shortens its output; its help says so).
+QUIET_HELP = ("no progress display (the tables, warnings, the path written and the caution "
+              "are still printed on standard output)")
+
+
 def _progress_bar(config, quiet):
     """A progress bar for :func:`fluxpart.process` and the callback that advances it."""
     from .pipeline import stage_count
@@ -140,12 +152,12 @@ def _command_demo(args) -> int:
         float_format=lambda v: f"{v:9.1f}"))
     print("(truth_in_95: the stated 95 % interval holds the truth; a calibrated one misses in "
           "about one estimate of twenty, see the README's cautions for the coverage measured)")
-    print(f"\nWrote {out}/ (Parquet tables and manifest.json)")
+    print(f"\nWrote {shown_path(f'{out}/')} (Parquet tables and manifest.json)")
     try:
         from .report import build_report
 
         page = build_report(out)
-        print(f"Report page: {page}")
+        print(f"Report page: {shown_path(page)}")
     except FluxpartError as error:
         print(f"No report page: {error}")
     print(f"Caution: {CAUTION}")
@@ -337,7 +349,7 @@ def _command_run(args) -> int:
     print(_format_annual(result.annual))
     for warning in result.warnings:
         print(f"warning: {warning}")
-    print(f"\nWrote {out}/ (Parquet tables and manifest.json)")
+    print(f"\nWrote {shown_path(f'{out}/')} (Parquet tables and manifest.json)")
     print(f"Caution: {CAUTION}")
     return 0
 
@@ -524,7 +536,7 @@ def _parser() -> argparse.ArgumentParser:
         "and write the result folder with its report page. Exit 0: written; 2: error.")
     demo.add_argument("--out", type=_path, default="fluxpart-demo", help="output folder (default: %(default)s)")
     demo.add_argument("--seed", type=int, default=0, help="seed of the demo data (default: 0)")
-    demo.add_argument("--quiet", action="store_true", help="no progress output")
+    demo.add_argument("--quiet", action="store_true", help=QUIET_HELP)
     demo.set_defaults(handler=_command_demo)
 
     run = commands.add_parser(
@@ -534,7 +546,7 @@ def _parser() -> argparse.ArgumentParser:
         "kept in the manifest. Exit 0: written; 2: an input or usage error (nothing written).")
     run.add_argument("config", type=_path, help="site config (TOML)")
     run.add_argument("--out", type=_path, help="output folder (default: <config name>-output beside it)")
-    run.add_argument("--quiet", action="store_true", help="no progress output")
+    run.add_argument("--quiet", action="store_true", help=QUIET_HELP)
     run.set_defaults(handler=_command_run)
 
     check = commands.add_parser(
@@ -580,7 +592,7 @@ def _parser() -> argparse.ArgumentParser:
     report.add_argument("directory", type=_path,
                         help="result folder written by run, demo or batch")
     report.add_argument("--out", type=_path, help="where to write the page (default: DIR/report/)")
-    report.add_argument("--quiet", action="store_true", help="no progress output")
+    report.add_argument("--quiet", action="store_true", help=QUIET_HELP)
     report.set_defaults(handler=_command_report)
 
     batch = commands.add_parser(
@@ -602,7 +614,7 @@ def _parser() -> argparse.ArgumentParser:
     batch.add_argument("--site-time-limit", type=float, metavar="MINUTES",
                        help="minutes a site may run on its worker before it is taken for hung "
                             "and failed (default: [batch] site_time_limit, else 240)")
-    batch.add_argument("--quiet", action="store_true", help="no progress output")
+    batch.add_argument("--quiet", action="store_true", help=QUIET_HELP)
     batch.set_defaults(handler=_lazy("batch", "command_batch"))
 
     export = commands.add_parser(
@@ -965,16 +977,12 @@ try:
 except ImportError:             # not POSIX
     _resource = None
 
-#: What the dynamic loader says (glibc's dlopen (m)) when the address space left is too
-#: small to map a shared library: its segments, its zero-filled pages or its descriptor
-_UNMAPPED_LIBRARY = ("failed to map segment from shared object", "cannot map zero-fill pages",
-                     "cannot allocate memory")
 
 
 def _library_not_loaded(error: ImportError | SystemError) -> str | None:
     """What went wrong where `error` is a library refused its memory, else None.
 
-    An ImportError in the dynamic loader's words (:data:`_UNMAPPED_LIBRARY`); a
+    An ImportError in the dynamic loader's words (:data:`LOADER_MEMORY_WORDS`); a
     SystemError "error return without exception set" raised by the import machinery (a
     compiled module's initialisation that failed to allocate and said nothing: ulimit -v
     300 MB in run, faults36) only under a limit on this process's address space, the one
@@ -982,7 +990,7 @@ def _library_not_loaded(error: ImportError | SystemError) -> str | None:
     """
     text = str(error).lower()
     if isinstance(error, ImportError):
-        return next((words for words in _UNMAPPED_LIBRARY if words in text), None)
+        return next((words for words in LOADER_MEMORY_WORDS if words in text), None)
     if "without exception set" not in text or not _address_space_limited():
         return None
     importing = any(frame.filename.startswith("<frozen importlib")

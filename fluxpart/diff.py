@@ -9,7 +9,7 @@ own manifest, see :func:`fluxpart.resultdir.read_folder`) and lists
 - each setting, the site, the seed, the reader's record and the warnings that differ;
 - the model choices the night data made (respiration temperature, delay, form weight);
 - each library version, the code fingerprint and the platform facts that differ;
-- the tables whose bytes differ;
+- the tables whose bytes differ, and whether their values or only their metadata do;
 - how each annual number moved: both values, the change (second minus first)
   and the change relative to the first value's magnitude.
 
@@ -28,9 +28,9 @@ import numpy as np
 import pandas as pd
 
 from .fingerprint import platform_differences
-from .manifest import CAUTION
+from .manifest import CAUTION, shown_path
 
-__all__ = ["DiffReport", "command_diff", "diff_folders"]
+__all__ = ["DiffReport", "command_diff", "diff_folders", "table_difference"]
 
 _SECTIONS = (("site", "site"), ("config", "setting"), ("seed", "seed"),
              ("warnings", "warnings"), ("caution", "caution"), ("format", "format"))
@@ -82,7 +82,8 @@ class DiffReport:
 
     def format(self) -> str:
         """The report as text for the command line."""
-        lines = [f"fluxpart diff: {self.first} (first) vs {self.second} (second)"]
+        lines = [f"fluxpart diff: {shown_path(self.first)} (first) vs "
+                 f"{shown_path(self.second)} (second)"]
         if self.same:
             lines.append(f"same: input, settings, site, versions, code, platform and all "
                          f"{self.same_annual} annual values are equal")
@@ -99,7 +100,8 @@ class DiffReport:
             # once: "warnings warnings" read as a typo (review25)
             labels = [name if name == section else f"{section} {name}"
                       for section, name, _, _ in self.items]
-            width = max((len(label) for label in labels), default=0)
+            # a long label (a table's metadata named) does not widen the others' column
+            width = max((len(label) for label in labels if len(label) <= 40), default=0)
             for label, (_, _, a, b) in zip(labels, self.items, strict=True):
                 if a == b == "":        # a platform fact names both values itself
                     lines.append(f"  {label}")
@@ -199,6 +201,65 @@ def _recorded_items(first: dict, second: dict) -> list:
     return items
 
 
+def table_difference(first: pd.DataFrame, second: pd.DataFrame) -> str:
+    """What differs between two tables of one name whose files' bytes differ.
+
+    A table written by another release can hold the same values with other metadata (a
+    column's description reworded, a unit written another way): "table monthly bytes
+    differ" read as changed numbers to an auditor comparing a 0.30.0 folder with a
+    rerun (round faults37). The values (index, columns, dtypes and every cell, NaN equal
+    to NaN: :meth:`pandas.DataFrame.equals`) are compared first, then the metadata the
+    reader restores (``attrs``: units, descriptions and the table's other facts).
+
+    Parameters
+    ----------
+    first, second : pandas.DataFrame
+        The table as :func:`fluxpart.store.read_table` reads it from each folder.
+
+    Returns
+    -------
+    str
+        ``"values"`` where a value, a column or the index differs; else ``"metadata
+        only (values equal): <key> of <columns>; ..."``; else ``"file only (values and
+        metadata equal)"`` (the Parquet writer's own bytes).
+
+    References
+    ----------
+    pandas documentation, ``DataFrame.equals`` (same shape, dtypes and elements, NaN in
+    the same places equal) (m).
+    """
+    if not (first.equals(second) and list(first.columns) == list(second.columns)
+            and first.index.names == second.index.names):
+        return "values"
+    parts = []
+    for key in sorted(set(first.attrs) | set(second.attrs), key=str):
+        a, b = first.attrs.get(key), second.attrs.get(key)
+        if a == b:
+            continue
+        if isinstance(a, dict) and isinstance(b, dict):
+            columns = sorted((c for c in set(a) | set(b) if a.get(c) != b.get(c)), key=str)
+            parts.append(f"{key} of {', '.join(map(str, columns))}")
+        else:
+            parts.append(str(key))
+    if parts:
+        return f"metadata only (values equal): {'; '.join(parts)}"
+    return "file only (values and metadata equal)"
+
+
+def _named_table_differences(items: list, first: dict, second: dict) -> list:
+    """`items` with each table whose bytes differ named by what differs
+    (:func:`table_difference`) where both folders hold it."""
+    out = []
+    for section, name, a, b in items:
+        table = name.removesuffix(" bytes")
+        if section == "table" and table in first and table in second:
+            out.append((section, f"{table} {table_difference(first[table], second[table])}",
+                        a, b))
+        else:
+            out.append((section, name, a, b))
+    return out
+
+
 def _other_periods(first: pd.DataFrame, second: pd.DataFrame) -> set:
     """Years whose row covers another period in each table (``period_start`` or
     ``period_end`` differ: another ``year_start``): their sums are not of one period."""
@@ -273,7 +334,8 @@ def diff_folders(first, second) -> DiffReport:
     first, second = Path(first), Path(second)
     a_manifest, a_tables = read_folder(first)
     b_manifest, b_tables = read_folder(second)
-    items = _recorded_items(a_manifest, b_manifest)
+    items = _named_table_differences(_recorded_items(a_manifest, b_manifest), a_tables,
+                                     b_tables)
     annual, same = _annual_moves(a_tables["annual"], b_tables["annual"])
     return DiffReport(first=first, second=second, items=tuple(items), annual=annual,
                       same_annual=same)

@@ -10,6 +10,7 @@ __all__ = [
     "DuplicateTimestampError",
     "FluxpartError",
     "FluxpartWarning",
+    "LOADER_MEMORY_WORDS",
     "ImplausibleValueError",
     "InputFileError",
     "InsufficientDataError",
@@ -160,3 +161,11 @@ def read_fault_remedy(error: OSError) -> str:
         return ("; the network or FUSE file system holding it is not connected: mount it "
                 "again, then run again")
     return ""
+
+
+#: What the dynamic loader says (glibc's dlopen (m)) when the address space left is too
+#: small to map a shared library: its segments, its zero-filled pages or its descriptor.
+#: An ImportError holding one of these is a memory limit, not a broken install: the
+#: command line's one line about memory (``cli``) says so.
+LOADER_MEMORY_WORDS = ("failed to map segment from shared object",
+                       "cannot map zero-fill pages", "cannot allocate memory")

@@ -72,7 +72,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import FluxpartError, InputFileError, OutputError
-from .manifest import recorded_paths
+from .manifest import recorded_paths, shown_path
 from .respiration_facts import respiration_comment, respiration_facts
 from .store import (
     file_mode,
@@ -1052,8 +1052,8 @@ def command_export(args) -> int:
     CF NetCDF and/or its tables as CSV with CSVW metadata (:mod:`fluxpart.export_csv`)."""
     if getattr(args, "netcdf", None) is not None:
         path = write_netcdf(args.directory, args.netcdf)
-        print(f"wrote {path} (CF-1.10 NetCDF: records, days, months and years, carbon fluxes "
-              "in kg m-2 s-1 and sums in g m-2)")
+        print(f"wrote {shown_path(path)} (CF-1.10 NetCDF: records, days, months and years, "
+              "carbon fluxes in kg m-2 s-1 and sums in g m-2)")
     if getattr(args, "csv", None) is not None:
         from .export_csv import command_csv
 

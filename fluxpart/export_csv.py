@@ -82,6 +82,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import OutputError
+from .manifest import shown_path
 from .respiration_facts import FACT_UNITS, respiration_facts
 from .schema import TIME_CONVENTION, units_for_table
 from .store import (
@@ -547,5 +548,6 @@ def _remove(staging: Path) -> None:
 def command_csv(directory, folder) -> Path:
     """The CSV part of ``fluxpart export DIR --csv FOLDER``; prints what was written."""
     path = write_csv(directory, folder)
-    print(f"wrote {path}/ (CSV tables with {METADATA_NAME}: W3C CSVW, units as UDUNITS-2)")
+    print(f"wrote {shown_path(f'{path}/')} (CSV tables with {METADATA_NAME}: W3C CSVW, "
+          "units as UDUNITS-2)")
     return path

@@ -44,7 +44,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from .errors import FluxpartError
+from .errors import LOADER_MEMORY_WORDS, FluxpartError
 from .responses import LASSLOP_VPD0_HPA, light_response, lloyd_taylor
 from .units import CARBON_UNIT, FLUX_UNIT, flux_to_carbon
 
@@ -248,15 +248,17 @@ def _import_matplotlib(*, setter_docs=True):
 
         from .install_hints import install_command
 
+        if any(words in str(error).lower() for words in LOADER_MEMORY_WORDS):
+            # a part's compiled library not mapped under a memory limit (ulimit -v 300 MB):
+            # the command line's one line about memory, without the reinstall hint that
+            # sent the user to reinstall what was installed (round faults37)
+            raise
         if importlib.util.find_spec("matplotlib") is not None:
-            # installed, but a part would not load: under a memory limit (ulimit -v 300
-            # MB) its compiled modules' mapping fails ("failed to map segment from shared
-            # object"), and "not installed, pip install" sent the user to install what was
+            # installed, but a part would not load (a file removed or of another Python):
+            # "not installed, pip install" sent the user to install what was
             raise FluxpartError(
-                f"matplotlib is installed but could not be loaded ({error}); where a "
-                "memory limit is set (ulimit -v, a container's or a batch job's), give the "
-                "process more memory, else reinstall the report extra: "
-                f"{install_command('report', reinstall=True)}") from None
+                f"matplotlib is installed but could not be loaded ({error}); reinstall the "
+                f"report extra: {install_command('report', reinstall=True)}") from None
         raise FluxpartError(
             "the report needs matplotlib, which is not installed; install the report extra "
             f"with: {install_command('report')}") from None

@@ -206,6 +206,36 @@ def shown_name(text: str) -> str:
     return text.encode("utf-8", "surrogateescape").decode("utf-8", "backslashreplace")
 
 
+def shown_path(path) -> str:
+    """A path as a command's output shows it: as it is, or quoted where it is ambiguous.
+
+    A folder name may hold a line break, a tab or an escape sequence (or bytes that are
+    not UTF-8, kept as lone surrogates and shown as ``\\xNN``): printed as it is, a
+    reader or a log parser sees two lines, or the terminal is rewritten. Such a path is
+    shown ``repr``-quoted, its control characters as Python's escapes, so that each item
+    stays on one line and the name can be told exactly; any other path is shown as it
+    is (round faults37).
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The path (relative or absolute, as the user gave it).
+
+    Returns
+    -------
+    str
+        The path (bytes that are not UTF-8 as ``\\xNN``, :func:`shown_name`) where
+        every character is printable, else its ``repr``.
+
+    References
+    ----------
+    Python documentation, ``str.isprintable`` and ``repr`` of a str (m); POSIX.1-2017,
+    3.170 Filename: any byte but ``/`` and NUL (m).
+    """
+    text = shown_name(str(path))
+    return text if text.isprintable() else repr(text)
+
+
 def undecodable_paths(provenance: dict, directory) -> list[str]:
     """The recorded paths of `provenance` that a manifest cannot hold, shown readably.
 

@@ -57,7 +57,7 @@ from .figures import (
     window_status,
     window_tally,
 )
-from .manifest import CAUTION, NEE_SCOPE, shown_name
+from .manifest import CAUTION, NEE_SCOPE, shown_name, shown_path
 from .measured_months import month_runs_text, unchecked_months
 from .resultdir import (
     DEFAULT_LOCK_TIMEOUT,
@@ -1419,6 +1419,7 @@ def command_report(args) -> int:
     finally:
         if collecting:
             gc.enable()
-    print(f"Wrote {path} (figures beside it; open it in any browser, no network needed)")
+    print(f"Wrote {shown_path(path)} (figures beside it; open it in any browser, no network "
+          "needed)")
     print(f"Caution: {CAUTION}")
     return 0

@@ -91,6 +91,7 @@ from .manifest import (
     read_manifest,
     recorded_path,
     shown_name,
+    shown_path,
     without_paths,
 )
 from .resultdir import interrupted_writes
@@ -327,8 +328,9 @@ class VerifyReport:
     def format(self) -> str:
         """Return the report as text for the command line."""
         count = len(self.tables)
+        folder = shown_path(self.directory)
         if self.identical:
-            lines = [f"bit-identical: all {count} tables of {self.directory} equal, bit for "
+            lines = [f"bit-identical: all {count} tables of {folder} equal, bit for "
                      f"bit, their recomputation from the recorded {self.source} input and "
                      "settings"]
         elif self.reproduced:
@@ -338,7 +340,7 @@ class VerifyReport:
                      "no recorded platform fact differs")
             lines = [f"reproduced within floating-point rounding (largest relative difference "
                      f"{self.largest_relative_difference:.3g}; {cause}): all {count} tables "
-                     f"of {self.directory} match their recomputation within the relative "
+                     f"of {folder} match their recomputation within the relative "
                      f"tolerance {ROUNDING_TOLERANCE:g} (standard errors of fitted "
                      f"parameters {STANDARD_ERROR_TOLERANCE:g})"]
             lines += [f"  {d.describe()}" for d in self.rounding]
@@ -346,14 +348,14 @@ class VerifyReport:
             failures = list(self.differences)
             if self.exact and not failures:
                 lines = [f"NOT bit-identical (--exact): {len(self.rounding)} column(s) of "
-                         f"{self.directory} differ within floating-point rounding (largest "
+                         f"{folder} differ within floating-point rounding (largest "
                          f"relative difference {self.largest_relative_difference:.3g})"]
             elif self.source == "none":
                 lines = [f"NOT reproduced: {len(failures)} difference(s) between "
-                         f"{self.directory} and its manifest (nothing recomputed):"]
+                         f"{folder} and its manifest (nothing recomputed):"]
             else:
                 lines = [f"NOT reproduced: {len(failures)} difference(s) between "
-                         f"{self.directory} and its recomputation:"]
+                         f"{folder} and its recomputation:"]
             lines += [f"  {d.describe()}" for d in failures + list(self.rounding)]
             # a file changed after it was written is no effect of code: naming the code
             # alone as the likely cause beside it read as an all-clear (review43)

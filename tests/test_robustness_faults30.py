@@ -187,7 +187,8 @@ def test_matplotlib_that_will_not_load_is_not_called_not_installed(monkeypatch):
     installed; pip install" with matplotlib installed: its compiled module's mapping
     failed ("failed to map segment from shared object"). ``importlib.util.find_spec``
     (Python's standard library) tells installed from not; an installed matplotlib whose
-    part does not load is named so, with the memory limit as the likely cause."""
+    part does not load is named so. (The loader's words for a memory limit reach the
+    command line's one line about memory instead: test_robustness_faults37.)"""
     import importlib.util
 
     from fluxpart.errors import FluxpartError
@@ -197,7 +198,7 @@ def test_matplotlib_that_will_not_load_is_not_called_not_installed(monkeypatch):
     monkeypatch.setitem(sys.modules, "matplotlib.figure", None)   # its import now fails
     with pytest.raises(FluxpartError, match="installed but could not be loaded") as caught:
         _import_matplotlib()
-    assert "ulimit -v" in str(caught.value) and "which is not installed" not in str(
+    assert "reinstall" in str(caught.value) and "which is not installed" not in str(
         caught.value)
 
 

@@ -36,6 +36,14 @@ runs into one folder; a stale lock of another host; damaged tables and manifests
 to verify; a decimal-comma locale and an unknown TZ (bytes); files dated 2100; hard-linked
 copies; a report folder linked to the user's; a batch killed with -9, on a full disk and
 under ulimit -n.
+
+Round faults37: a result folder named with a line break and a tab in every command's
+output; report under ulimit -v 290-330 MB (memory only, no reinstall hint); what run
+--quiet promises; a batch on a full tmpfs (failure kind, a rerun of the missing sites
+only); SIGTERM and SIGINT during export --netcdf and report; one table replaced by
+another run's under a valid manifest; diff of a folder of release 0.30.0 (605729f
+unpacked with git archive under the scratch folder) and a new one; the input's tmpfs
+unmounted lazily (umount -l) while run holds it open.
 """
 import hashlib
 import os
@@ -1015,7 +1023,10 @@ def f_batch_killed_rerun():
 
 def f_batch_full_disk():
     """A batch whose out folder is a tmpfs of 700 kB (room for one site), then the space
-    freed (the tmpfs remounted larger) and the batch run again."""
+    freed (the tmpfs remounted larger) and the batch run again: failures.parquet records
+    the failed sites with kind 'output' (faults37), and the rerun processes only the
+    sites that were missing (the whole site's manifest untouched)."""
+    import pandas as pd
     make_net()
     out = NET / "out"
     out.mkdir()
@@ -1026,16 +1037,23 @@ def f_batch_full_disk():
         done = fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET)
         codes = sites_verify(out)
         left = leftovers(out)
+        whole = sorted(p.name for p in out.iterdir() if (p / "manifest.json").is_file())
+        kinds = (sorted(set(pd.read_parquet(out / "failures.parquet")["kind"]))
+                 if (out / "failures.parquet").is_file() else [])
         _mounted(out, "-o", "remount,size=20m")
+        stamps = {n: (out / n / "manifest.json").stat().st_mtime_ns for n in whole}
         rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+        kept = all((out / n / "manifest.json").stat().st_mtime_ns == t
+                   for n, t in stamps.items())
         after = sites_verify(out)
     finally:
         subprocess.run(["umount", str(out)])
     record("a batch into a disk that fills (700 kB tmpfs), then space freed and rerun",
-           one_line(done) and all(c == 0 for c in codes) and not left
-           and rerun.returncode == 0 and after == [0] * 4,
+           one_line(done) and all(c == 0 for c in codes) and not left and kinds == ["output"]
+           and 0 < len(whole) < 4 and kept and rerun.returncode == 0 and after == [0] * 4,
            f"exit {done.returncode} {errlines(done)[:1]!r:.150}, {len(codes)} sites whole, "
-           f"left {left}, rerun {rerun.returncode}, verify {after}")
+           f"kinds {kinds}, left {left}, rerun {rerun.returncode} "
+           f"{rerun.stdout.splitlines()[:1]!r:.100}, whole kept {kept}, verify {after}")
 
 
 def f_batch_open_files():
@@ -1133,6 +1151,177 @@ def f_stack_limit():
            all(s[3] for s in seen) and not leftovers(W), f"{seen}")
 
 
+# ------------------------------------------------------------------ round faults37
+def f_path_control_characters():
+    """A result folder whose name holds a line break and a tab: run, verify, report,
+    export (NetCDF and CSV) and diff show it ``repr``-quoted, one line per item; the raw
+    name never reaches standard output or the error line."""
+    odd = W / "p\nq\tr"
+    shutil.rmtree(odd, ignore_errors=True)
+    done = [fp("run", "site.toml", "--out", odd, "--quiet"),
+            fp("verify", "--quiet", odd), fp("report", "--quiet", odd),
+            fp("export", "--netcdf", W / "p\nq.nc", odd),
+            fp("export", "--csv", W / "p\nq csv", odd), fp("diff", odd, odd)]
+    raw = [i for i, d in enumerate(done) if str(odd) in d.stdout + d.stderr]
+    codes = [d.returncode for d in done]
+    shown = [repr(str(odd))[:-1] in d.stdout for d in (done[0], done[1], done[5])]
+    record("a result folder name with a line break and a tab in every command's output",
+           not raw and codes == [0] * 6 and all(shown),
+           f"exits {codes}, commands printing the raw name {raw}, quoted {shown}")
+    shutil.rmtree(odd, ignore_errors=True)
+    shutil.rmtree(W / "p\nq csv", ignore_errors=True)
+    (W / "p\nq.nc").unlink(missing_ok=True)
+
+
+def f_report_memory_line():
+    """``report`` under ``ulimit -v`` 290 to 330 MB (where matplotlib's compiled
+    libraries cannot be mapped): one line about memory, no reinstall hint."""
+    import resource
+    seen = []
+    for mb in (290, 300, 310, 320, 330):
+        folder = fresh("mem_rep")
+        done = limited({resource.RLIMIT_AS: mb << 20}, "report", "--quiet", folder)
+        text = " ".join(errlines(done))
+        seen.append((mb, done.returncode, done.returncode == 0 or (
+            one_line(done) and "memory" in text and "reinstall" not in text
+            and not (folder / "report").exists())))
+    record("report under ulimit -v 290-330 MB: memory only, no reinstall hint",
+           all(s[2] for s in seen) and not leftovers(W), f"{seen}")
+
+
+def f_run_quiet_promise():
+    """``run --quiet``: what the help and the README promise (the progress display only)
+    is what it does; the tables still print."""
+    out = W / "quiet"
+    shutil.rmtree(out, ignore_errors=True)
+    done = fp("run", "site.toml", "--out", out, "--quiet")
+    helped = fp("run", "--help").stdout
+    readme = (TREE / "README.md").read_text()
+    promise = "tables" in helped.split("--quiet", 2)[-1] and "only the progress" in readme
+    record("run --quiet does what --help and the README say",
+           done.returncode == 0 and "\r" not in done.stderr and promise,
+           f"stderr {done.stderr.count(chr(13))} carriage returns, stdout "
+           f"{len(done.stdout.splitlines())} lines, help/README say tables still print: "
+           f"{promise}")
+
+
+def f_stop_netcdf_and_report():
+    """SIGTERM and SIGINT during ``export --netcdf`` and ``report``, sent once the
+    temporary file or staging folder appears: one line, exit 128 + signal, nothing
+    half-written."""
+    for signum in (signal.SIGTERM, signal.SIGINT):
+        for command in ("export", "report"):
+            folder = fresh("stop_" + command)
+            target = W / "stop.nc"
+            target.unlink(missing_ok=True)
+            if command == "export":
+                args = ["export", "--netcdf", target, folder]
+                appeared = lambda: _entries(W, ".stop.nc.")          # noqa: E731
+            else:
+                args = ["report", "--quiet", folder]
+                appeared = lambda folder=folder: _entries(  # noqa: E731
+                    folder, ".report.staging-")
+            done = stop_when(args, signum, appeared)
+            left = leftovers(W) + leftovers(folder)
+            whole = (not target.exists() and not (folder / "report").exists()) or \
+                done.returncode == 0
+            record(f"{signal.Signals(signum).name} during {command}"
+                   + (" --netcdf" if command == "export" else ""),
+                   one_line(done, 128 + signum) and not left and whole
+                   or (done.returncode == 0 and not left),
+                   f"exit {done.returncode}, {errlines(done)[:1]!r:.140}, left {left}")
+            for stale in leftovers(W) + leftovers(folder):
+                path = W / stale if (W / stale).exists() else folder / stale
+                shutil.rmtree(path, ignore_errors=True) if path.is_dir() else path.unlink()
+            target.unlink(missing_ok=True)
+
+
+def f_table_of_other_run_why():
+    """A valid manifest with one table replaced by another run's copy: verify names the
+    table and why (its checksum is not the manifest's)."""
+    folder = fresh("t_why")
+    shutil.copy2(W / "r1" / "annual.parquet", folder / "annual.parquet")
+    done = verify(folder)
+    first = done.stdout.splitlines()[0] if done.stdout else ""
+    record("one table replaced by another run's copy: verify names it and why",
+           done.returncode == 1 and "annual.parquet" in first
+           and any(w in first for w in ("SHA-256", "checksum", "changed")),
+           f"exit {done.returncode}; {first[:200]!r}")
+
+
+def f_diff_older_release():
+    """``diff`` between a folder written by release 0.30.0 (commit 605729f, its final
+    code, unpacked with git archive) and one written now: differences of the writer are
+    named as metadata, not as numbers."""
+    base = W / "rel0300"
+    if not (base / "fluxpart").is_dir():
+        base.mkdir(parents=True, exist_ok=True)     # the release's files, no worktree
+        files = subprocess.run(["git", "-C", str(TREE), "archive", "605729f"],
+                               capture_output=True)
+        made = subprocess.run(["tar", "-x", "-C", str(base)], input=files.stdout,
+                              capture_output=True) if files.returncode == 0 else files
+        if made.returncode != 0:
+            record("diff of a 0.30.0 folder and a new one", False,
+                   f"0.30.0 not unpacked: {made.stderr.strip()[:120]!r}")
+            return
+    out = W / "r_old"
+    shutil.rmtree(out, ignore_errors=True)
+    old = fp("run", "site.toml", "--out", out, "--quiet", env=dict(ENV, PYTHONPATH=str(base)))
+    done = fp("diff", out, W / "r0")
+    tables = [line.strip() for line in done.stdout.splitlines()
+              if line.strip().startswith("table ")]
+    record("diff of a 0.30.0-written folder and a new one: metadata named as such",
+           old.returncode == 0 and done.returncode in (0, 1) and "How the annual" not in
+           done.stdout and all("metadata only" in t or "file only" in t for t in tables),
+           f"old run {old.returncode}, diff {done.returncode}: "
+           f"{[t.split('  first')[0] for t in tables]!r:.260}")
+
+
+def f_input_unmounted_lazily():
+    """The input on a file system unmounted lazily (``umount -l``, as a network share
+    that goes away) while run reads it (the process stopped with SIGSTOP the moment it
+    holds the file open, the share unmounted, the process continued): the run completes
+    from the open file or stops with one line naming the input; nothing half-written."""
+    share = W / "share"
+    share.mkdir(exist_ok=True)
+    if not _mounted(share, "-t", "tmpfs", "-o", "size=50m", "tmpfs"):
+        record("the input's file system unmounted while read", False, "mount refused")
+        return
+    example = TREE / "examples" / "quillmoor_grassland"       # a whole year, 1 MB
+    shutil.copy2(example.with_suffix(".csv"), share / "tower.csv")
+    config = W / "b" / "share.toml"
+    config.write_text(example.with_suffix(".toml").read_text().replace(
+        "quillmoor_grassland.csv", str(share / "tower.csv")))
+    out = W / "u_out"
+    shutil.rmtree(out, ignore_errors=True)
+    proc = start("run", config, "--out", out, "--quiet")
+    pid_fd = Path(f"/proc/{proc.pid}/fd")
+    deadline = time.time() + 60
+    held = False
+    while proc.poll() is None and time.time() < deadline:
+        try:
+            held = any(str(share) in os.readlink(f) for f in pid_fd.iterdir())
+        except OSError:
+            held = False
+        if held:
+            proc.send_signal(signal.SIGSTOP)     # held still while its share goes away
+            break
+    gone = subprocess.run(["umount", "-l", str(share)], capture_output=True).returncode == 0
+    proc.send_signal(signal.SIGCONT)
+    stdout, stderr = proc.communicate(timeout=120)
+    done = subprocess.CompletedProcess([], proc.returncode, stdout, stderr)
+    good = (verify(out, "--input", example.with_suffix(".csv")).returncode
+            if out.exists() else None)
+    record("the input's file system unmounted lazily while read (umount -l)",
+           gone and ((done.returncode == 0 and good == 0) or (one_line(done)
+                                                             and not out.exists()))
+           and not leftovers(W),
+           f"held open when unmounted {held}, exit {done.returncode} "
+           f"{errlines(done)[:1]!r:.160}, verify after {good}")
+    if subprocess.run(["mountpoint", "-q", str(share)]).returncode == 0:
+        subprocess.run(["umount", str(share)])
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -1147,7 +1336,11 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_locale_bytes, f_future_mtimes, f_huge_line, f_quotes_path,
           f_input_replaced_by_rename, f_batch_killed_rerun, f_batch_full_disk,
           f_batch_open_files, f_hard_linked_copy, f_report_folder_link,
-          f_compressed_input_damaged, f_stack_limit]
+          f_compressed_input_damaged, f_stack_limit,
+          # round faults37
+          f_path_control_characters, f_report_memory_line, f_run_quiet_promise,
+          f_stop_netcdf_and_report, f_table_of_other_run_why,
+          f_diff_older_release, f_input_unmounted_lazily]
 
 if __name__ == "__main__":
     wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
