@@ -979,7 +979,6 @@ except ImportError:             # not POSIX
     _resource = None
 
 
-
 def _library_not_loaded(error: ImportError | SystemError) -> str | None:
     """What went wrong where `error` is a library refused its memory, else None.
 
