@@ -59,6 +59,8 @@ def test_check_lists_a_u_star_floor_far_above_the_detected_threshold(example, ca
     assert main(["check", str(example)]) == 1
     out = capsys.readouterr().out
     assert "u* threshold: " in out and "ustar_min_threshold = 0.5 m s-1" in out
+    # the note names its stage once (review53: "u* threshold: u* threshold: ...")
+    assert "u* threshold: u* threshold" not in out
 
 
 def test_run_writes_the_result_folder(example, tmp_path, capsys):
