@@ -555,19 +555,25 @@ def test_time_column_without_a_name_is_named_as_such(example, tmp_path, capsys):
     assert "time_column" in line and "column 1 has no name in the header" in line
 
 
-def test_record_skipped_as_a_units_line_is_refused(example, tmp_path, capsys):
+def test_record_skipped_as_a_units_line_is_read_and_named(example, tmp_path, capsys):
     """Monthly files with a units line under the header, one of them without it: with
     rows_after_header = 1 its first record was skipped as the units line, unnoticed (one
-    record of the year lost, check without a problem). Now named at its line."""
+    record of the year lost, check without a problem). It was then refused at its line;
+    since 0.31.0 (a logger swap that adds or drops the units line) the file is read from
+    its first record, every record kept, and check names the file as a problem."""
+    from fluxpart.io import read_site_config
+
     lines = example.with_suffix(".csv").read_text().splitlines()
     units = "-,umol m-2 s-1,W m-2,C,kPa,m s-1,C,%,-"
     (tmp_path / "th_1.csv").write_text("\n".join([lines[0], units] + lines[1:9000]) + "\n")
     (tmp_path / "th_2.csv").write_text("\n".join([lines[0]] + lines[9000:]) + "\n")
     config = tmp_path / "months.toml"
     _configure(example, config, 'path = "th_*.csv"\nrows_after_header = 1')
-    assert main(["check", str(config)]) == 2
-    line = _one_error(capsys)
-    assert "th_2.csv': line 2 (" in line and "rows_after_header = 1, is a record" in line
+    assert main(["check", str(config)]) == 1
+    out = capsys.readouterr().out
+    assert "th_2.csv" in out and "a units line written by one logger program" in out
+    frame, _ = read_site_config(config).read()
+    assert len(frame) == len(lines) - 1          # no record lost
 
 
 def test_file_without_header_line_is_named_as_such(example, tmp_path, capsys):
