@@ -1793,7 +1793,7 @@ def window_tally(parameters: pd.DataFrame, states: pd.DataFrame, bound) -> str:
     187-208 (m).
     """
     counts = states["state"].value_counts() if len(states) else pd.Series(dtype=int)
-    _, bound, _ = beta0_scale(np.array([np.nan]), bound)
+    bound = _bound_value(bound)
     parts = []
     # the drawn states in their order, then any other an older result's strings give
     for state in [*_STATE_STYLE, *(s for s in counts.index if s not in _STATE_STYLE)]:
@@ -1830,6 +1830,11 @@ def _light_windows(parameters: pd.DataFrame, states: pd.DataFrame, wanted: int =
     return fitted.loc[picks]
 
 
+def _bound_value(bound) -> float | None:
+    """The β0 bound [µmol m-2 s-1] as the manifest records it, as a float; None where none."""
+    return float(bound) if isinstance(bound, (int, float)) and np.isfinite(bound) else None
+
+
 def beta0_scale(beta0: np.ndarray, bound) -> tuple[float, float | None, bool]:
     """The top of the β0 timeline's axis, the bound of β0 and whether to draw it.
 
@@ -1853,7 +1858,7 @@ def beta0_scale(beta0: np.ndarray, bound) -> tuple[float, float | None, bool]:
         of a grassland) squeezed every window into the bottom tenth of the axis
         (before review49), and is named in the title instead.
     """
-    bound = float(bound) if isinstance(bound, (int, float)) and np.isfinite(bound) else None
+    bound = _bound_value(bound)
     fitted = beta0[np.isfinite(beta0)]
     largest = float(fitted.max()) if fitted.size and fitted.max() > 0 else None
     if largest is None:
