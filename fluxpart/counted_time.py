@@ -15,6 +15,7 @@ without this setting, naming the readings), so the setting is the user's word on
 """
 from __future__ import annotations
 
+import os
 import re
 
 import numpy as np
@@ -209,3 +210,63 @@ def unit_mismatch(text: pd.Series, time_format: str) -> str:
             return (f"{said}; counted in {unit}s they are {minutes:.0f} minutes apart: set "
                     f"[input] time_format = {setting_text(other)} if that is their unit")
     return f"{said}: check the unit of [input] time_format"
+
+
+#: The two day counts of spreadsheets: 1 January 1904 is day 1462 of the 1900 system
+#: (Microsoft, "Date systems in Excel": the 1904 system's dates are 1462 days later (m)).
+_DAY_SYSTEMS = {pd.Timestamp("1899-12-30"): ("1904-01-01", "Excel's 1904 date system"),
+                pd.Timestamp("1904-01-01"): ("1899-12-30", "the 1900 date system of "
+                                             "Excel and LibreOffice")}
+#: A year written in a file name: 1971-2099 standing alone among the digits
+_NAMED_YEAR = re.compile(r"(?<!\d)(19[7-9]\d|20\d\d)(?!\d)")
+
+
+def day_system_mismatch(text: pd.Series, time_format: str, source: str) -> str:
+    """Why spreadsheet day numbers seem to count in the other date system, or ''.
+
+    Parameters
+    ----------
+    text : pandas.Series of str
+        The stamp text per record: day numbers.
+    time_format : str
+        ``"days since 1899-12-30"`` or ``"days since 1904-01-01"`` (any other format: '').
+    source : str
+        The file's path or name.
+
+    Returns
+    -------
+    str
+        Where the file's name writes a year (1971-2099) that no stamp read under
+        `time_format` falls in but one read in the other system does: the years of both
+        readings and the setting of the other; '' otherwise (no year named, or the
+        reading as set agrees with it).
+
+    Notes
+    -----
+    Excel for Mac before 2011 counted days from 1904-01-01, so a sheet of that system
+    read as days since 1899-12-30 lands 1462 days (4 years and a day) early, and the
+    reverse as late (Microsoft, "Date systems in Excel" (m)); the counts alone cannot
+    tell the systems apart. A year in the file name is the evidence the reader has; a
+    file of other years named so is rare, and renaming it lets it be read as set.
+    """
+    form = counted_form(time_format)
+    if form is None or form[0] != 86400.0 or form[1] not in _DAY_SYSTEMS:
+        return ""
+    named = {int(year) for year in _NAMED_YEAR.findall(os.path.basename(str(source)))}
+    numbers = counts(text)
+    numbers = numbers[np.isfinite(numbers) & (np.abs(numbers) < 1e6)]
+    if not named or not numbers.size:
+        return ""
+    other, system = _DAY_SYSTEMS[form[1]]
+    first, last = (pd.Timestamp(form[1]) + pd.Timedelta(days=float(v))
+                   for v in (numbers.min(), numbers.max()))
+    shift = pd.Timestamp(other) - form[1]
+    years = set(range(first.year, last.year + 1))
+    other_years = set(range((first + shift).year, (last + shift).year + 1))
+    if named & years or not named & other_years:
+        return ""
+    return (f"the file name names {min(named & other_years)}, but as {time_format} the "
+            f"stamps run from {first:%Y-%m-%d} to {last:%Y-%m-%d}; counted as days since "
+            f"{other} ({system}) they fall in {min(named & other_years)}: the sheet likely "
+            f"used that system (set [input] time_format = \"days since {other}\"); if the "
+            "records are of the years as read, rename the file so that it names them")

@@ -37,6 +37,12 @@ _SECTIONS = (("site", "site"), ("config", "setting"), ("seed", "seed"),
 # provenance records of the choices the night data make, and the fields compared
 _MODEL_CHOICES = (("respiration_driver", ("chosen", "delay_hours")),
                   ("respiration_form", ("exponential_weight", "share_applied")))
+#: Longest label that sets the column the values start in [characters]; a longer one is
+#: wrapped on lines of its own (:func:`_item_lines`).
+LABEL_WIDTH = 40
+#: Width the lines of a long label and its values are wrapped to [characters]: a
+#: terminal's common default (common practice).
+TERMINAL_COLUMNS = 80
 
 
 @dataclass(frozen=True)
@@ -101,12 +107,10 @@ class DiffReport:
             labels = [name if name == section else f"{section} {name}"
                       for section, name, _, _ in self.items]
             # a long label (a table's metadata named) does not widen the others' column
-            width = max((len(label) for label in labels if len(label) <= 40), default=0)
+            width = max((len(label) for label in labels if len(label) <= LABEL_WIDTH),
+                        default=0)
             for label, (_, _, a, b) in zip(labels, self.items, strict=True):
-                if a == b == "":        # a platform fact names both values itself
-                    lines.append(f"  {label}")
-                else:
-                    lines.append(f"  {label:<{width}}  first {a}  second {b}")
+                lines.extend(_item_lines(label, a, b, width))
             if not self.annual.empty:
                 other = _years_of_other_periods(self.annual)
                 if other:
@@ -121,6 +125,31 @@ class DiffReport:
             lines.append(f"annual values equal in both: {self.same_annual}")
         lines.append(f"Caution: {CAUTION}")
         return "\n".join(lines)
+
+
+def _item_lines(label: str, first: str, second: str, width: int) -> list:
+    """The lines of one differing item: its label padded to `width` and both values.
+
+    A label longer than `width` (over :data:`LABEL_WIDTH` characters: a table's
+    metadata named) is wrapped on lines of its own and its values follow on the next
+    lines, starting in the column the other items' values start in, each wrapped to
+    :data:`TERMINAL_COLUMNS` (leftovers49: such a label pushed its values out of the
+    column). A platform fact (both values empty) names both values itself.
+    """
+    import textwrap
+
+    if first == second == "":
+        return [f"  {label}"]
+    if len(label) <= width:
+        return [f"  {label:<{width}}  first {first}  second {second}"]
+    lines = textwrap.wrap(label, TERMINAL_COLUMNS, initial_indent="  ",
+                          subsequent_indent="    ", break_on_hyphens=False)
+    indent = " " * (width + 4)
+    for name, value in (("first", first), ("second", second)):
+        lines += textwrap.wrap(f"{name} {value}", TERMINAL_COLUMNS, initial_indent=indent,
+                               subsequent_indent=indent + " " * (len(name) + 1),
+                               break_on_hyphens=False) or [f"{indent}{name}"]
+    return lines
 
 
 def _years_of_other_periods(annual: pd.DataFrame) -> list:

@@ -140,7 +140,12 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     table, _, _, _ = ustar_stage.ustar_thresholds(frame, screens.screened, is_night, site,
                                                   config)
     # a set threshold or floor the night records disagree with, as `run` warns it
-    # (review52: check exited 0 on a floor that moved NEE by 4 sigma)
+    # (review52: check exited 0 on a floor that moved NEE by 4 sigma). Kept in the
+    # table's attrs, not a third return value (leftovers49, read and left): the public
+    # return is the pair `counts, table` that callers unpack, and a third value or a
+    # result object would break each of them; the notes judge the thresholds of this
+    # table, pandas carries attrs through its selections, and a reader that finds none
+    # (a table from elsewhere) lists none (`attrs.get`)
     table.attrs["setting_notes"] = tuple(ustar_stage.threshold_setting_notes(
         frame, screens.screened, is_night, site, config))
     # the reasons decided after the u* threshold (low u*, mornings after calm nights) are

@@ -22,7 +22,7 @@ import numpy as np
 import pandas as pd
 
 from .config import setting_text
-from .counted_time import counted_form, counted_stamps, counts, unit_mismatch
+from .counted_time import counted_form, counted_stamps, counts, day_system_mismatch, unit_mismatch
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -1309,6 +1309,11 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             # as stamps beyond 3000 years, 12-hour clocks or 2-second records (review51)
             raise TimestampError(f"{_time_setting(time_columns)} of {source!r}, time_format "
                                  f"= {setting_text(written_format)}: {mismatch}")
+        # a sheet of the other day system lands 1462 days off without a word (leftovers49)
+        other_system = day_system_mismatch(text, time_format, source)
+        if other_system:
+            raise TimestampError(f"{_time_setting(time_columns)} of {source!r}, time_format "
+                                 f"= {setting_text(written_format)}: {other_system}")
         text, time_format, no_count = counted_stamps(text, time_format)
         if no_count.any():
             first = int(np.flatnonzero(no_count)[0])

@@ -174,3 +174,27 @@ def test_a_model_choice_the_data_made_differently_is_named(folders):
     assert model["respiration_driver chosen"][1] == "other"
     assert model["respiration_driver delay_hours"][1] == "3.0"
     assert model["respiration_form exponential_weight"][1] == "0.25"
+
+
+def test_a_long_label_wraps_and_its_values_start_in_the_others_column():
+    """A label over 40 characters (a table's metadata named) was printed on one line
+    with its values, out of the column of the others (leftovers49): it now takes lines
+    of its own, each at most 80 characters (a terminal's common width), and its values
+    follow starting in the same column as every other item's."""
+    from pathlib import Path
+
+    from fluxpart.diff import DiffReport
+
+    long = "parameters_nighttime_e0_annual.parquet metadata fluxpart_columns_and_units"
+    report = DiffReport(Path("a"), Path("b"), items=(
+        ("seed", "seed", "0", "7"), ("format", long, "x" * 30, "y" * 70),
+        ("setting", "events", "(absent)", '["2021-07-20"]')))
+    lines = report.format().splitlines()[2:]
+    column = lines[0].index("first ")
+    assert lines[3].index("first ") == column and lines[4].index("second ") == column
+    after = next(line for line in lines if "events" in line)
+    assert after.index("first ") == column         # the item after it is still aligned
+    assert all(len(line) <= 80 for line in lines[:lines.index(after) + 1])
+    assert " ".join(line.strip() for line in lines[1:3]) == f"format {long}"
+    assert "x" * 30 in lines[3] and "".join(line.strip() for line in lines[4:6]) == (
+        "second " + "y" * 70)

@@ -281,3 +281,32 @@ def test_words_without_a_blank_line_or_among_the_records_stay_refused(tmp_path):
     path.write_text(table.to_csv(index=False))
     with pytest.raises(TimestampError, match="'mean', which does not match"):
         _read(path)
+
+
+def test_day_numbers_of_the_other_date_system_are_named_by_the_year_in_the_file_name(
+        tmp_path):
+    """Day numbers of Excel's 1904 date system read as days since 1899-12-30 landed 1462
+    days (four years and a day) early without a word (leftovers49); a year in the file
+    name that only the other system's reading reaches names it. 1 January 1904 is day
+    1462 of the 1900 system (Microsoft, "Date systems in Excel" (m)); the stamps are
+    computed with Python's datetime."""
+    frame, ends = _records()                       # invented records of 1-10 June 2021
+    days_1904 = [f"{(e.to_pydatetime() - datetime(1904, 1, 1)) / timedelta(days=1):.6f}"
+                 for e in ends]
+    path = _write(tmp_path, days_1904, frame)
+    named = path.rename(tmp_path / "tower_2021_june.csv")
+    with pytest.raises(TimestampError, match=r"file name names 2021, but as days since "
+                       r"1899-12-30 the stamps run from 2017-05-3.*days since 1904-01-01 "
+                       r"\(Excel's 1904 date system\)"):
+        _read(named, time_format="days since 1899-12-30")
+    read, _ = _read(named, time_format="days since 1904-01-01")   # the right system: read
+    _assert_all(read, frame, ends)
+    # 1900-system numbers set as 1904 would land four years late: named the same way
+    days_1900 = [f"{(e.to_pydatetime() - datetime(1899, 12, 30)) / timedelta(days=1):.6f}"
+                 for e in ends]
+    path = _write(tmp_path, days_1900, frame).rename(tmp_path / "site-2021.csv")
+    with pytest.raises(TimestampError, match="the 1900 date system"):
+        _read(path, time_format="days since 1904-01-01")
+    # no year in the name, or the year the stamps as set reach: read as set
+    read, _ = _read(path.rename(tmp_path / "tower.csv"), time_format="days since 1899-12-30")
+    _assert_all(read, frame, ends)

@@ -141,3 +141,31 @@ def test_a_floor_far_above_the_detected_range_is_named_and_one_below_it_is_quiet
                   Config(ustar_method="fixed", ustar_threshold=planted,
                          ustar_min_threshold=2.5 * planted)):
         assert floor_far_above_note(*arguments, quiet, floor) is None
+
+
+def test_the_night_deficit_finds_a_loss_beyond_the_noise_and_none_on_a_flat_record():
+    """Known truth on invented night records (leftovers49): the ninth trial's windy heath
+    at its true threshold was named as too low, its night NEE flat above the fixed value
+    but the detector's bootstrap range above it. The night-deficit test compares, within
+    each stratum, the NEE between the fixed and the detected threshold with the plateau's:
+    on a flat record it stays inside its noise; with the flux lost in proportion to
+    u*/threshold below a threshold of 0.2 m s-1 (storage and drainage, Goulden et al. 1996
+    (m)) it falls short by the planted mean loss, beyond 2.33 standard errors."""
+    from fluxpart.ustar_fixed import DEFICIT_Z, night_deficit
+
+    rng = np.random.default_rng(5)
+    n = 4000
+    strata = rng.integers(0, 6, n)
+    respiration = 1.0 + 0.5 * strata                  # warmer strata respire more
+    ustar_values = rng.uniform(0.05, 0.6, n)
+    noise = rng.normal(0.0, 0.8, n)
+    flat = respiration + noise
+    deficit, error, records = night_deficit(0.08, 0.2, flat, ustar_values, strata)
+    between = (ustar_values >= 0.08) & (ustar_values < 0.2)
+    assert records == between.sum() and abs(deficit) < DEFICIT_Z * error
+    lost = respiration * np.minimum(ustar_values / 0.2, 1.0) + noise
+    deficit, error, _ = night_deficit(0.08, 0.2, lost, ustar_values, strata)
+    planted = np.mean((lost - flat)[between])
+    assert deficit < -DEFICIT_Z * error and abs(deficit - planted) < 3 * error
+    # nothing between the two thresholds: no evidence either way
+    assert np.isnan(night_deficit(0.3, 0.2, flat, ustar_values, strata)[0])
