@@ -449,7 +449,14 @@ class Config:
         ½·|ΣΔ|, a part of the daytime totals
         (``gpp_daytime_uncertainty_light_shape``,
         ``reco_daytime_uncertainty_light_shape``; the u* scenarios take the central
-        run's shift; :mod:`fluxpart.partition.light_shape`, figures in DEVELOPERS.md).
+        run's shift; :mod:`fluxpart.partition.light_shape`). On 42 generated
+        site-years (seeds 0–13 of the three sets) it took daytime GPP / Reco summed
+        |error| from 755 / 979 to 633 / 815 g C m-2 (worst 91.5 / 162.2 → 61.2 / 88.6,
+        mean z +0.66 / +0.52 → +0.38 / +0.12) with the daytime intervals as wide as
+        before, covered in 42 / 41 of 42 (41 / 41 before; nighttime GPP 41 → 40, its
+        interval narrower with the smaller day–night difference); not the default, as
+        daytime GPP's 100 % lies above the 85–99 % the intervals are held to (figures
+        in DEVELOPERS.md, "Unreleased: dayshape49").
     random_error_draws : int
         Monte Carlo realisations of the random error of NEE summed per year; 500,
         our choice (the standard deviation of the sum is then known to about 3 %).

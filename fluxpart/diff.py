@@ -36,7 +36,8 @@ _SECTIONS = (("site", "site"), ("config", "setting"), ("seed", "seed"),
              ("warnings", "warnings"), ("caution", "caution"), ("format", "format"))
 # provenance records of the choices the night data make, and the fields compared
 _MODEL_CHOICES = (("respiration_driver", ("chosen", "delay_hours")),
-                  ("respiration_form", ("exponential_weight", "share_applied")))
+                  ("respiration_form", ("exponential_weight", "share_applied")),
+                  ("light_shape", ("profiled_curvature",)))
 
 
 @dataclass(frozen=True)
