@@ -93,20 +93,9 @@ def averaged_shape(frame, screened, filled_drivers, central, is_night, temperatu
 
     Parameters
     ----------
-    frame, screened : pandas.DataFrame
-        The prepared and the screened record.
-    filled_drivers : pandas.DataFrame
-        The filled drivers.
-    central : fluxpart.ustar_runs.RunOutcome
-        The central u* run.
-    is_night : numpy.ndarray of bool
-        The night mask.
-    temperature : str
-        The respiration temperature.
-    delay : int
-        Records by which it is delayed.
-    config : Config
-        Settings (``daytime_curvature``).
+    frame, screened, filled_drivers, central, is_night, temperature, delay, config
+        As :func:`daytime_driver_evidence` (`central` the rectangular central run;
+        ``config.daytime_curvature``).
 
     Returns
     -------

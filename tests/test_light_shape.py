@@ -12,6 +12,7 @@ import dataclasses
 import numpy as np
 import pandas as pd
 import pytest
+from test_respiration_form import flat_inputs
 
 from fluxpart.config import Config
 from fluxpart.errors import ConfigError
@@ -22,7 +23,7 @@ from fluxpart.partition.light_shape import (
     average_shapes,
     central_curvature,
 )
-from fluxpart.uncertainty import UncertaintyInputs, period_uncertainty
+from fluxpart.uncertainty import period_uncertainty
 from fluxpart.uncertainty_parts import uncertainty_parts
 
 _G_C_PER_UMOL_HALF_HOUR = 1800 * 12.011e-6     # 30 min x molar mass of carbon [g µmol-1]
@@ -65,16 +66,8 @@ def test_light_shape_part_in_the_daytime_totals_only_and_among_the_daytime_parts
     """½ |ΣΔ| in carbon for daytime GPP and Reco, in their totals (root sum of squares),
     not in the nighttime ones; the partitioning part counts it as the daytime method's
     own, so with d² = p² it vanishes. Without the shape the columns are not written."""
-    index = pd.date_range("2021-06-01", periods=2 * 48, freq="30min")
-    n = len(index)
-    zeros = np.zeros(n)
-    fluxes = pd.DataFrame({name: np.ones(n) for name in (
-        "nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")}, index=index)
-    plain = UncertaintyInputs(
-        measured=np.ones(n, dtype=bool), noise_sigma=zeros, is_night=index.hour < 6,
-        fluxes=fluxes, runs={}, gapfill_model=None, e0_delta=zeros,
-        night_window=np.zeros(n, dtype=int), night_relative_se=np.full(n, np.nan),
-        day_window=np.zeros(n, dtype=int), day_relative_se=np.full(n, np.nan))
+    plain = flat_inputs()
+    n, fluxes = len(plain.fluxes), plain.fluxes
     keys = np.zeros(n, dtype=int)
     without = period_uncertainty(plain, keys, 30).iloc[0]
     assert not [c for c in without.index if "light_shape" in c]
