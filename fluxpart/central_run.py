@@ -1,8 +1,13 @@
-"""What follows the u* runs on the central run: the respiration form, the daytime evidence.
+"""What follows the u* runs on the central run: the respiration form, the light shape,
+the daytime evidence.
 
 The nighttime Reco refitted with a constant Q10 and averaged with the Lloyd–Taylor
 Reco by their BIC weight (:mod:`fluxpart.partition.respiration_form`), the same shift
-added to every u* run (:func:`shifted`); the daytime method refitted on the other
+added to every u* run (:func:`shifted`); with ``daytime_curvature = "average"`` the
+daytime method refitted once with a profiled light-response curvature and averaged
+with the rectangular fit (:func:`averaged_shape`,
+:mod:`fluxpart.partition.light_shape`), the same shift added to every u* run; the
+daytime method refitted on the other
 respiration temperature as evidence on the choice
 (:func:`fluxpart.partition.temperature_choice.daytime_evidence`); the text naming the
 E0 daytime windows without their own took.
@@ -26,7 +31,7 @@ import numpy as np
 from . import gapfill, method_failure, uncertainty
 from .errors import FluxpartError, InsufficientDataError
 from .method_settings import OTHER_TEMPERATURE, nighttime_settings, respiration_temperature
-from .partition import pieces, respiration_form, temperature_choice
+from .partition import light_shape, pieces, respiration_form, temperature_choice
 from .ustar_runs import fit_daytime
 
 
@@ -76,6 +81,43 @@ def averaged_form(frame, filled_drivers, central, is_night, temperature, config,
         nee_measured, is_night, night.reco, exponential)
     return respiration_form.average_forms(night.reco, exponential, weight,
                                           config.respiration_form)
+
+
+def averaged_shape(frame, screened, filled_drivers, central, is_night, temperature, delay,
+                   config):
+    """The daytime method's two light-response shapes on the central run, or None.
+
+    With ``daytime_curvature = "average"`` the central run's rectangular daytime fit is
+    refitted with the curvature profiled on the record, once
+    (:mod:`fluxpart.partition.light_shape`).
+
+    Parameters
+    ----------
+    frame, screened, filled_drivers, central, is_night, temperature, delay, config
+        As :func:`daytime_driver_evidence` (`central` the rectangular central run;
+        ``config.daytime_curvature``).
+
+    Returns
+    -------
+    fluxpart.partition.light_shape.ShapeAverage or None
+        None with another setting, or where a method failed or the profiled fit
+        cannot be made (the daytime fluxes then stay rectangular, without the part).
+
+    References
+    ----------
+    Lasslop, G. et al. (2010), see the module.
+    """
+    _, nee_measured, _, night, day = central
+    if (config.daytime_curvature != light_shape.AVERAGE or method_failure.failed(day)
+            or method_failure.failed(night)):
+        return None
+    try:
+        profiled = fit_daytime(frame, nee_measured, screened, filled_drivers,
+                               respiration_temperature(filled_drivers, temperature, delay, True),
+                               is_night, config, "fit", night)
+    except FluxpartError:
+        return None
+    return light_shape.average_shapes(day, profiled)
 
 
 def shifted(night, shift):
@@ -201,6 +243,9 @@ class CentralStage(NamedTuple):
     night_light : list of dict
         The central fill's yearly tests of night NEE on the preceding day's light
         (:func:`fluxpart.preceding_light.test_records`; empty where not tested).
+    shape : fluxpart.partition.light_shape.ShapeAverage or None
+        The daytime light-response shapes' average and spread
+        (``daytime_curvature = "average"``); None otherwise.
     """
 
     outcomes: dict
@@ -208,10 +253,12 @@ class CentralStage(NamedTuple):
     day_evidence: object
     warnings: list
     night_light: list = []
+    shape: object = None
 
 
 def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
-    """The respiration form averaged into every run, and the central run's checks.
+    """The respiration form (and the light shape) averaged into every run, and the central
+    run's checks.
 
     Parameters
     ----------
@@ -242,13 +289,23 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
                          config, delay)
     outcomes = {name: outcome._replace(night=shifted(outcome.night, form.shift))
                 for name, outcome in outcomes.items()}
+    # the daytime method's two light-response shapes, profiled once on the central run;
+    # the same per-record shift in every u* run, as the respiration form's
+    rectangular = outcomes["central"]
+    shape = averaged_shape(frame, screened, filled_drivers, rectangular, is_night,
+                           temperature, delay, config)
+    if shape is not None:
+        outcomes = {name: outcome._replace(day=shape.shifted(outcome.day))
+                    if not method_failure.failed(outcome.day) else outcome
+                    for name, outcome in outcomes.items()}
     _, _, filled, night, day = outcomes["central"]
     warnings = list(gapfill.crossed_event_notes(frame.index, config.events,
                                                 filled.attrs.pop("events_crossed", [])))
     if config.events:
         warnings.extend(pieces.window_notes(frame.index, gapfill.event_breaks(
             frame.index, config.events), night.rref_windows, day.parameters))
-    day_evidence = daytime_driver_evidence(frame, screened, filled_drivers, outcomes["central"],
+    # the evidence compares two fits of one shape: the rectangular central run's
+    day_evidence = daytime_driver_evidence(frame, screened, filled_drivers, rectangular,
                                            is_night, temperature, delay, config)
     fell_back = day.parameters["e0_source"] == "fallback"
     if config.e0_fallback is None and fell_back.any():
@@ -262,4 +319,4 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
             "flagged 'fallback' in the daytime parameter table, so the two methods are not "
             "independent in their E0")
     return CentralStage(outcomes, form, day_evidence, warnings,
-                        filled.attrs.pop("night_light_tests", []))
+                        filled.attrs.pop("night_light_tests", []), shape)

@@ -36,7 +36,8 @@ _SECTIONS = (("site", "site"), ("config", "setting"), ("seed", "seed"),
              ("warnings", "warnings"), ("caution", "caution"), ("format", "format"))
 # provenance records of the choices the night data make, and the fields compared
 _MODEL_CHOICES = (("respiration_driver", ("chosen", "delay_hours")),
-                  ("respiration_form", ("exponential_weight", "share_applied")))
+                  ("respiration_form", ("exponential_weight", "share_applied")),
+                  ("light_shape", ("profiled_curvature",)))
 #: Longest label that sets the column the values start in [characters]; a longer one is
 #: wrapped on lines of its own (:func:`_item_lines`).
 LABEL_WIDTH = 40

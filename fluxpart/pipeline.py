@@ -268,7 +268,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     return result_tables.result(
         site, config, interval, tables, parameters, warnings,
         result_tables.run_provenance(provenance, checked, driver, central.form,
-                                     central.night_light))
+                                     central.night_light, central.shape))
 
 
 def process_site_config(path, config: Config | None = None, *, progress=None,

@@ -304,7 +304,7 @@ def _uncertainty_fact(parts: pd.DataFrame | None, label) -> str:
     if parts is None or label not in parts.index.get_level_values("year"):
         return ""
     table = parts.xs(label, level="year")
-    names = list(PART_LABELS)
+    names = [name for name in PART_LABELS if name in table.columns]
 
     def ordered(flux):
         values = table.loc[flux, names].astype(float).dropna()

@@ -182,7 +182,7 @@ def screening_counts(counts, reason) -> pd.Series:
     return counts
 
 
-def run_provenance(provenance, checked, driver, form, night_light=()) -> dict:
+def run_provenance(provenance, checked, driver, form, night_light=(), shape=None) -> dict:
     """The run's provenance: the caller's, then the screening, clock, preflight and choices.
 
     Parameters
@@ -198,17 +198,21 @@ def run_provenance(provenance, checked, driver, form, night_light=()) -> dict:
     night_light : list of dict, optional
         The central fill's yearly tests of night NEE on the preceding day's light
         (:func:`fluxpart.preceding_light.test_records`), as ``"night_fill_light"``.
+    shape : fluxpart.partition.light_shape.ShapeAverage, optional
+        The daytime light-response shapes' average (``daytime_curvature = "average"``),
+        as ``"light_shape"``; absent otherwise.
 
     Returns
     -------
     dict
     """
+    shaped = {} if shape is None else {"light_shape": shape.to_dict()}
     return {**(provenance or {}), "screening": checked.screens.thresholds,
             "clock": checked.clock_record,
             "preflight": [str(f) for f in checked.findings],
             "respiration_driver": ({"setting": driver.temperature} if driver.choice is None
                                    else driver.choice.to_dict()),
-            "respiration_form": form.to_dict(),
+            "respiration_form": form.to_dict(), **shaped,
             "night_fill_light": list(night_light),
             "uncertainty": {"confidence": uncertainty.CONFIDENCE,
                             "not_quantified": list(uncertainty.NOT_QUANTIFIED),

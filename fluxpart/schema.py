@@ -239,6 +239,14 @@ UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
                                                   "constant Q10 - with Lloyd-Taylor| x sqrt(w); "
                                                   "in the daytime totals (NaN where the Q10 fit "
                                                   "fails)"),
+}
+for _flux in ("gpp_daytime", "reco_daytime"):
+    UNCERTAINTY_COLUMNS[f"{_flux}_uncertainty_light_shape"] = (
+        CARBON, f"1 sigma: structural error of {_flux} (carbon) from the shape of the light "
+        f"response: |{_flux} with the curvature profiled on the record - with the "
+        "rectangular hyperbola| x 1/2, the two shapes' spread about their equal-weight "
+        "average; in the daytime totals; written with daytime_curvature = average only")
+UNCERTAINTY_COLUMNS |= {
     "reco_uncertainty_partitioning": (CARBON, "1 sigma: structural error of Reco (carbon): "
                                       "the part of d = daytime - nighttime the methods' "
                                       "parameter parts do not explain, sqrt(max(d^2 - "

@@ -1807,6 +1807,14 @@ class UncertaintyInputs:
         [µmol m-2 s-1], NaN elsewhere, and the number of the stretch each record
         lies in (:class:`fluxpart.partition.daytime.DaytimeResult`); None: not
         counted.
+    shape_gpp_delta, shape_reco_delta : numpy.ndarray or None
+        Daytime GPP and Reco with the profiled non-rectangular light response minus
+        the rectangular one [µmol m-2 s-1]
+        (:class:`fluxpart.partition.light_shape.ShapeAverage`); None: not counted
+        (and the ``..._uncertainty_light_shape`` columns not written).
+    shape_spread : float
+        Standard deviation of the two shapes about the central estimate per |ΣΔ|
+        (:attr:`fluxpart.partition.light_shape.ShapeAverage.spread_factor`) [1].
     """
 
     measured: np.ndarray
@@ -1836,6 +1844,9 @@ class UncertaintyInputs:
     day_gpp_before: np.ndarray | None = None
     day_gpp_after: np.ndarray | None = None
     day_stretch: np.ndarray | None = None
+    shape_gpp_delta: np.ndarray | None = None
+    shape_reco_delta: np.ndarray | None = None
+    shape_spread: float = 0.0
 
 
 def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
@@ -2072,7 +2083,7 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
                   nee_measured=None, fill_window_days=None,
                   fill_noise_sigma=None, respiration_form=None, day_driver_statistic=None,
                   day_evidence_critical=1.96, breaks=None,
-                  fill_sides=None, daytime_result=None) -> UncertaintyInputs:
+                  fill_sides=None, daytime_result=None, light_shape=None) -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -2134,6 +2145,9 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         ``stretch``) give the change of the light response across a stretch of
         more than :data:`fluxpart.gap_sides.MIN_GAP_DAYS` without a window in use;
         default None (not counted).
+    light_shape : fluxpart.partition.light_shape.ShapeAverage, optional
+        The daytime light-response shapes' differences and spread
+        (``daytime_curvature = "average"``); default None (not counted).
 
     Returns
     -------
@@ -2162,8 +2176,12 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
             "day_gpp_before": np.where(wide, daytime_result.gpp_before, np.nan),
             "day_gpp_after": np.where(wide, daytime_result.gpp_after, np.nan),
             "day_stretch": np.asarray(daytime_result.stretch, dtype=np.int64)}
+    shape = {} if light_shape is None else {
+        "shape_gpp_delta": light_shape.gpp_difference,
+        "shape_reco_delta": light_shape.reco_difference,
+        "shape_spread": light_shape.spread_factor}
     return UncertaintyInputs(
-        **day_sides,
+        **day_sides, **shape,
         measured=np.asarray(measured, dtype=bool), noise_sigma=np.asarray(noise_sigma, float),
         is_night=np.asarray(is_night, dtype=bool), fluxes=fluxes,
         runs={name: frame for name, frame in runs.items()}, gapfill_model=gapfill_model,
@@ -2340,6 +2358,11 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       nighttime GPP / Reco from 92.9 / 97.6 % to 97.6 / 100 % and of daytime
       GPP / Reco from 88.1 / 85.7 % to 97.6 / 90.5 %; on the 126 Lloyd–Taylor
       site-years mean widths grew by about 1 %.
+    - light-response shape (structural, ``daytime_curvature = "average"`` only):
+      ½ · |Σ(X(profiled curvature) − X(rectangular))| for daytime GPP and Reco
+      (``X_uncertainty_light_shape``; :mod:`fluxpart.partition.light_shape`): the
+      two shapes' spread about their equal-weight average, in the daytime totals
+      and among the daytime method's own parts below.
     - partitioning (structural): for GPP and for Reco, the part of the
       difference d = daytime − nighttime that the methods' own quantified parts
       do not explain, added to both methods: if each method's error is its
@@ -2550,8 +2573,18 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     for flux, part in parameters.items():
         out[f"{flux}_uncertainty_parameters"] = part
 
+    # the daytime light response's shape (daytime_curvature = "average"): the two shapes'
+    # spread about their average, a part of the daytime method's own
+    shape = {}
+    if inputs.shape_gpp_delta is not None:
+        for flux, delta in (("gpp_daytime", inputs.shape_gpp_delta),
+                            ("reco_daytime", inputs.shape_reco_delta)):
+            shape[flux] = np.abs(per_period(np.nan_to_num(delta))) * factor \
+                * inputs.shape_spread
+            out[f"{flux}_uncertainty_light_shape"] = shape[flux]
     # what each method's own quantified parts already explain of the difference
-    specific = {flux: np.square(_nan_to_zero(part)) for flux, part in parameters.items()}
+    specific = {flux: np.square(_nan_to_zero(part)) + np.square(shape.get(flux, 0.0))
+                for flux, part in parameters.items()}
     specific["gpp_nighttime"] = specific["gpp_nighttime"] \
         + np.square(out["gpp_nighttime_uncertainty_random"]) \
         + np.square(_nan_to_zero(out["gpp_nighttime_uncertainty_gapfill"]))
@@ -2595,9 +2628,11 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         ustar["gpp_nighttime"], parameters["gpp_nighttime"], method["gpp"], driver, form,
         out["gpp_nighttime_uncertainty_random"], out["gpp_nighttime_uncertainty_gapfill"])
     out["reco_daytime_uncertainty_total"] = total(
-        ustar["reco_daytime"], parameters["reco_daytime"], method["reco"], driver, form_day)
+        ustar["reco_daytime"], parameters["reco_daytime"], method["reco"], driver, form_day,
+        *[shape[flux] for flux in ("reco_daytime",) if flux in shape])
     out["gpp_daytime_uncertainty_total"] = total(
-        ustar["gpp_daytime"], parameters["gpp_daytime"], method["gpp"], driver, form_day)
+        ustar["gpp_daytime"], parameters["gpp_daytime"], method["gpp"], driver, form_day,
+        *[shape[flux] for flux in ("gpp_daytime",) if flux in shape])
     for flux in _FLUXES:
         out[f"{flux}_sigma"] = np.where(carbon[flux].isna().to_numpy(), np.nan,
                                         out[f"{flux}_uncertainty_total"])

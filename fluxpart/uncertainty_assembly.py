@@ -36,7 +36,7 @@ from .partition import nighttime, temperature_choice
 def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions,
                        is_night, night, day, temperature, interval, config, year_keys,
                        night_fits, error_model=None, form=None, delay=0, day_evidence=None,
-                       sun_up=None):
+                       sun_up=None, shape=None):
     """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals.
 
     Parameters
@@ -79,6 +79,9 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
     sun_up : numpy.ndarray of bool, optional
         The sun above the horizon in the record, for the fills of the artificial and
         the long gaps as the central fill (:func:`fluxpart.method_settings.fill_nee`).
+    shape : fluxpart.partition.light_shape.ShapeAverage, optional
+        The daytime light-response shapes' average and spread
+        (``daytime_curvature = "average"``).
 
     Returns
     -------
@@ -176,7 +179,7 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
             timeseries["nee_filled"].to_numpy(dtype=float)), respiration_form=form,
         day_driver_statistic=None if day_evidence is None else day_evidence[0],
         day_evidence_critical=temperature_choice.DAYTIME_EVIDENCE_Z,
-        fill_sides=sides, daytime_result=day,
+        fill_sides=sides, daytime_result=day, light_shape=shape,
         **event_cut(index, config))
     notes = []
     if (other_reco is not None and day_evidence is not None and inputs.driver_weight == 0.5
@@ -357,7 +360,7 @@ def uncertainty_stage(timeseries, budgets, central, inputs, driver, interval, co
         budgets.daily, budgets.monthly, budgets.annual, timeseries, central.outcomes, sigma,
         inputs.conditions, inputs.is_night, night, day, driver.temperature, interval, config,
         year_keys, driver.night_fits, error_model, central.form, driver.delay,
-        central.day_evidence, inputs.sun_up)
+        central.day_evidence, inputs.sun_up, central.shape)
     warnings.extend(driver_notes)
     parameters["gapfill_error_model"] = gapfill_model
     # a method that could not fit has no sums, so no uncertainty of them either

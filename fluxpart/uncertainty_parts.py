@@ -5,7 +5,8 @@ The annual table writes every part of the stated uncertainty as its own column
 nor the same column of a part: nighttime GPP (Reco − NEE) takes NEE's random and
 gap-filling errors only outside the night (``gpp_nighttime_uncertainty_random``,
 ``..._gapfill``), and the daytime method, which keeps Lloyd–Taylor, its own
-respiration-form part. :func:`uncertainty_parts` picks for each flux the columns its
+respiration-form part (and, with ``daytime_curvature = "average"``, its light-shape
+part). :func:`uncertainty_parts` picks for each flux the columns its
 ``X_uncertainty_total`` combines, so that the parts shown add up (in quadrature) to the
 total shown. Pure pandas: the report imports it without any method module.
 """
@@ -28,7 +29,12 @@ PART_LABELS = {
     "partitioning": "difference between the partitioning methods",
     "temperature": "choice of respiration temperature",
     "form": "respiration form (Lloyd–Taylor or Q10)",
+    "light shape": "daytime light-response shape (rectangular or profiled curvature)",
 }
+
+#: Parts a run writes only with some settings: shown only where the table has them.
+_OPTIONAL_PARTS = {"light shape": ("gpp_daytime_uncertainty_light_shape",
+                                   "reco_daytime_uncertainty_light_shape")}
 
 
 def _part_column(flux: str, part: str) -> str | None:
@@ -52,6 +58,8 @@ def _part_column(flux: str, part: str) -> str | None:
     if part == "form":
         return ("reco_daytime_uncertainty_respiration_form" if flux.endswith("daytime")
                 else "reco_uncertainty_respiration_form")
+    if part == "light shape":
+        return f"{flux}_uncertainty_light_shape" if flux.endswith("daytime") else None
     raise ValueError(f"unknown uncertainty part {part!r}")
 
 
@@ -67,7 +75,7 @@ def uncertainty_parts(annual: pd.DataFrame) -> pd.DataFrame | None:
     -------
     pandas.DataFrame or None
         Indexed by (``year``, ``flux``); columns the parts of :data:`PART_LABELS`
-        [g C m-2, 1 sigma; NaN where the flux's total takes no such part or the run
+        (the light shape's only where the table has its columns) [g C m-2, 1 sigma; NaN where the flux's total takes no such part or the run
         could not estimate it], ``total`` (``X_uncertainty_total``, the root sum of
         squares of the parts) and ``ci95_low`` / ``ci95_high`` [g C m-2]. None where
         the table has no ``X_uncertainty_total`` column.
@@ -79,6 +87,8 @@ def uncertainty_parts(annual: pd.DataFrame) -> pd.DataFrame | None:
     as the root sum of their squares (m).
     """
     nan = float("nan")
+    shown = [part for part in PART_LABELS if part not in _OPTIONAL_PARTS
+             or any(column in annual.columns for column in _OPTIONAL_PARTS[part])]
     rows = []
     for year, row in annual.iterrows():
         for flux in FLUXES:
@@ -86,7 +96,7 @@ def uncertainty_parts(annual: pd.DataFrame) -> pd.DataFrame | None:
             if total not in annual.columns:
                 continue
             entry = {"year": year, "flux": flux}
-            for part in PART_LABELS:
+            for part in shown:
                 column = _part_column(flux, part)
                 entry[part] = float(row.get(column, nan)) if column else nan
             entry.update(total=float(row[total]),

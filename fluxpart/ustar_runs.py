@@ -39,7 +39,7 @@ from .method_settings import (
     nighttime_settings,
     respiration_temperature,
 )
-from .partition import daytime, nighttime
+from .partition import daytime, light_shape, nighttime
 
 
 class RunInputs(NamedTuple):
@@ -359,7 +359,9 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
     (the u* threshold's bootstrap percentiles as scenarios).
     """
     outcomes = {}
-    curvature = config.daytime_curvature
+    # "average": the runs fit the rectangular shape; the profiled one is fitted once, on
+    # the central run (fluxpart.central_run.averaged_shape)
+    curvature = light_shape.central_curvature(config.daytime_curvature)
     skip, borrowed = (), False
     for name, threshold in runs.items():
         try:

@@ -20,6 +20,7 @@ from fluxpart.partition.daytime import (
     DaytimeResult,
     partition_daytime,
 )
+from fluxpart.partition.light_shape import average_shapes
 from fluxpart.responses import light_response, lloyd_taylor
 
 REFERENCE = load_reference("light_response")
@@ -746,6 +747,13 @@ def test_planted_curvature_recovered_and_rectangular_fit_biased_high():
     assert abs(fitted.parameters["curvature"].iloc[0] - planted) <= 0.15
     assert abs(fitted.reco.sum() / truth - 1.0) <= 0.05
     assert rectangular.reco.sum() > fitted.reco.sum()
+    # daytime_curvature = "average" (light_shape): the midpoint is closer to the truth
+    # than the rectangular fit, and the stated ±1.96 x ½|ΣΔ| holds it
+    shape = average_shapes(rectangular, fitted)
+    averaged = shape.shifted(rectangular).reco.sum()
+    assert abs(averaged - truth) < abs(rectangular.reco.sum() - truth)
+    assert abs(averaged - truth) <= 1.96 * shape.spread_factor * abs(
+        shape.reco_difference.sum())
 
 
 def test_curvature_setting_is_checked():

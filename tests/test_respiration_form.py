@@ -61,20 +61,26 @@ def test_exponential_fit_recovers_a_constant_q10_that_lloyd_taylor_misses():
     assert driver_weight(measured, night, central.reco, other) > 0.9
 
 
-def test_form_part_is_the_spread_times_the_difference_in_every_partitioned_total():
-    """s |Σ ΔReco| with s = sqrt(w) about Lloyd-Taylor (as for the temperature driver),
-    in all four totals."""
+def flat_inputs(**parts) -> UncertaintyInputs:
+    """Two invented days of 30-minute records, every flux 1 µmol m-2 s-1, no random,
+    gap-filling, u* or parameter part: only the structural `parts` given."""
     index = pd.date_range("2021-06-01", periods=2 * 48, freq="30min")
     n = len(index)
     zeros = np.zeros(n)
     fluxes = pd.DataFrame({name: np.ones(n) for name in (
         "nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")}, index=index)
-    inputs = UncertaintyInputs(
+    return UncertaintyInputs(
         measured=np.ones(n, dtype=bool), noise_sigma=zeros, is_night=index.hour < 6,
         fluxes=fluxes, runs={}, gapfill_model=None, e0_delta=zeros,
         night_window=np.zeros(n, dtype=int), night_relative_se=np.full(n, np.nan),
-        day_window=np.zeros(n, dtype=int), day_relative_se=np.full(n, np.nan),
-        form_delta=np.full(n, 0.5), form_weight=0.36, form_spread=0.6)
+        day_window=np.zeros(n, dtype=int), day_relative_se=np.full(n, np.nan), **parts)
+
+
+def test_form_part_is_the_spread_times_the_difference_in_every_partitioned_total():
+    """s |Σ ΔReco| with s = sqrt(w) about Lloyd-Taylor (as for the temperature driver),
+    in all four totals."""
+    n = 2 * 48
+    inputs = flat_inputs(form_delta=np.full(n, 0.5), form_weight=0.36, form_spread=0.6)
     out = period_uncertainty(inputs, np.zeros(n, dtype=int), 30).iloc[0]
     expected = 0.6 * 0.5 * n * 1800 * 12.011e-6
     assert out["reco_uncertainty_respiration_form"] == pytest.approx(expected)

@@ -16,7 +16,9 @@ Usage (takes minutes; run in the background, one at a time on a shared machine):
 
     nohup .venv/bin/python tests/benchmarks/bench_calibration.py --sites 35 > /tmp/calib.log &
 
-``--start`` picks the first seed; ``--csv FILE`` also writes one row per site-year.
+``--start`` picks the first seed; ``--csv FILE`` also writes one row per site-year;
+``--processing 'daytime_curvature = "average"'`` runs every site-year with those
+``[processing]`` settings (TOML lines, ``\\n`` between them) instead of the defaults.
 """
 
 from __future__ import annotations
@@ -24,6 +26,7 @@ from __future__ import annotations
 import argparse
 import sys
 import time
+import tomllib
 
 import numpy as np
 import pandas as pd
@@ -31,10 +34,19 @@ import pandas as pd
 FLUXES = {"nee": "nee", "gpp_nighttime": "gpp", "reco_nighttime": "reco",
           "gpp_daytime": "gpp", "reco_daytime": "reco"}
 
+#: The settings of every run: ``--processing`` (:func:`seed_arguments`); None: defaults.
+SETTINGS = {"config": None}
+
+
+def configured_process(frame, site):
+    """:func:`fluxpart.process` with the command line's ``--processing`` settings."""
+    import fluxpart
+
+    return fluxpart.process(frame, site, SETTINGS["config"])
+
 
 def run_one(seed: int) -> dict:
     """Process one generated site-year; return its errors, intervals and facts."""
-    import fluxpart
     from fluxpart import scenarios
 
     site_year = scenarios.generate(seed)
@@ -46,7 +58,7 @@ def run_one(seed: int) -> dict:
            "curvature": site_year.scenario.parameters["curvature"],
            "nee_missing": float(site_year.frame["nee"].isna().mean())}
     try:
-        result = fluxpart.process(site_year.frame, site_year.site)
+        result = configured_process(site_year.frame, site_year.site)
     except Exception as error:  # noqa: BLE001 - a benchmark reports failures and goes on
         row["failure"] = f"{type(error).__name__}: {error}"[:200]
         return row
@@ -85,12 +97,20 @@ def summarise(table: pd.DataFrame) -> pd.DataFrame:
 
 
 def seed_arguments(description: str, sites: int, argv=None) -> argparse.Namespace:
-    """``--start`` (first seed), ``--sites`` (how many, default `sites`) and ``--csv``."""
+    """``--start`` (first seed), ``--sites`` (how many, default `sites`), ``--csv`` and
+    ``--processing`` (kept in :data:`SETTINGS` for :func:`configured_process`)."""
+    from fluxpart.config import Config
+
     parser = argparse.ArgumentParser(description=description)
     parser.add_argument("--sites", type=int, default=sites)
     parser.add_argument("--start", type=int, default=0)
     parser.add_argument("--csv", default=None)
-    return parser.parse_args(argv)
+    parser.add_argument("--processing", default="",
+                        help="[processing] lines (TOML) for every site-year")
+    args = parser.parse_args(argv)
+    text = args.processing.replace("\\n", "\n")
+    SETTINGS["config"] = Config.from_mapping(tomllib.loads(text)) if text.strip() else None
+    return args
 
 
 def main(argv=None) -> int:

@@ -1,7 +1,8 @@
 """Benchmark: whole-command times of the CLI against a fixed NumPy reference workload.
 
 Run by hand from the repository root: ``.venv/bin/python tests/benchmarks/bench_commands.py``
-(``--repeats N`` runs each command N times and keeps the smallest CPU time).
+(``--repeats N`` runs each command N times and keeps the smallest CPU time;
+``--processing 'daytime_curvature = "average"'`` adds settings to the runs' ``[processing]``).
 
 Prints, in one run, for each command started as a fresh interpreter (start-up and
 imports included): its CPU time (user + system of the child, from ``os.wait4``), its
@@ -176,11 +177,15 @@ def print_stages(repeats: int) -> None:
         print(f"  {seconds:6.3f} s  {seconds / unit:5.1f} x ref  {label}")
 
 
-def write_inputs(directory: Path) -> tuple[Path, Path]:
-    """Site configs of the one-year Quillmoor example and of a ten-year file in its layout."""
+def write_inputs(directory: Path, processing: str = "") -> tuple[Path, Path]:
+    """Site configs of the one-year Quillmoor example and of a ten-year file in its layout,
+    with the ``[processing]`` lines `processing` (TOML) added to both."""
     from fluxpart import demo
 
     one = demo.write_example(directory / "one")
+    if processing:
+        text = one.read_text()
+        one.write_text(text.replace("[processing]\n", f"[processing]\n{processing}\n", 1))
     frame, _ = demo.site_year(seed=0, years=10)
     ten = directory / "ten"
     ten.mkdir()
@@ -205,12 +210,16 @@ def main() -> None:
     parser.add_argument("--stages", action="store_true",
                         help="print the CPU time of each stage of one cold `run` instead")
     parser.add_argument("--write-inputs", metavar="DIR", help=argparse.SUPPRESS)
+    parser.add_argument("--processing", default="",
+                        help="[processing] lines (TOML, \\n between them) for both runs, "
+                             "e.g. 'daytime_curvature = \"average\"'")
     options = parser.parse_args()
+    processing = options.processing.replace("\\n", "\n")
     if options.stages:
         print_stages(options.repeats)
         return
     if options.write_inputs:
-        print(*write_inputs(Path(options.write_inputs)))
+        print(*write_inputs(Path(options.write_inputs), processing))
         return
     repeats = options.repeats
     python = sys.executable
@@ -219,7 +228,8 @@ def main() -> None:
         # written by a child process, so this one stays small: a child's peak RSS
         # (ru_maxrss) cannot be below the RSS of the process that started it
         inputs = subprocess.run(
-            [python, __file__, "--write-inputs", str(scratch)], check=True,
+            [python, __file__, "--write-inputs", str(scratch), "--processing", processing],
+            check=True,
             capture_output=True, text=True).stdout.split()
         one_year, ten_years = map(Path, inputs)
         commands = {

@@ -25,9 +25,12 @@ import pandas as pd
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
-from bench_calibration import FLUXES, seed_arguments  # noqa: E402  (this folder)
+from bench_calibration import (  # noqa: E402  (this folder)
+    FLUXES,
+    configured_process,
+    seed_arguments,
+)
 
-import fluxpart  # noqa: E402
 from fluxpart import scenarios  # noqa: E402
 
 _BASE = scenarios.ARCHETYPES
@@ -72,9 +75,10 @@ def generate(seed: int) -> tuple[str, scenarios.SiteYear]:
 
 
 def scored(site_year: scenarios.SiteYear, row: dict) -> dict:
-    """Process `site_year` with defaults; add its errors, coverage and u* found to `row`."""
+    """Process `site_year` (defaults or ``--processing``); add its errors, coverage and u*
+    found to `row`."""
     try:
-        result = fluxpart.process(site_year.frame, site_year.site)
+        result = configured_process(site_year.frame, site_year.site)
     except Exception as error:  # noqa: BLE001 - a benchmark reports failures and goes on
         row["failure"] = f"{type(error).__name__}: {error}"[:200]
         return row
