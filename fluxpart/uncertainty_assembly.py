@@ -33,6 +33,40 @@ from .method_settings import (
 from .partition import nighttime, temperature_choice
 
 
+def with_hidden(conditions, hidden):
+    """The drivers with the cells an artificial gap hides set missing.
+
+    ``conditions.mask(hidden)`` cell for cell, at a fifth of its cost (a cost paid on
+    every round of :func:`fluxpart.uncertainty.artificial_gap_errors`, round speed49).
+
+    Parameters
+    ----------
+    conditions : pandas.DataFrame
+        The drivers the NEE fill compares (numeric columns: ``rg`` [W m-2], ``tair``
+        [°C], ``vpd`` [hPa], ...).
+    hidden : numpy.ndarray of bool or None
+        Shape (records, columns): True where the artificial gap hides the driver.
+
+    Returns
+    -------
+    pandas.DataFrame
+        `conditions` (None: itself), the hidden cells NaN, the columns float64.
+
+    References
+    ----------
+    Falge, E. et al. (2001). Gap filling strategies for defensible annual sums of net
+    ecosystem exchange. Agricultural and Forest Meteorology 107, 43-69 (artificial gaps
+    scoring a fill).
+    """
+    if hidden is None:
+        return conditions
+    # one (columns x records) block, as pandas keeps a frame's columns
+    values = conditions.to_numpy(dtype=float).T.copy()
+    values[np.asarray(hidden, dtype=bool).T] = np.nan
+    return pd.DataFrame(values.T, index=conditions.index, columns=conditions.columns,
+                        copy=False)
+
+
 def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions,
                        is_night, night, day, temperature, interval, config, year_keys,
                        night_fits, error_model=None, form=None, delay=0, day_evidence=None,
@@ -114,8 +148,8 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
     # each artificial gap hides the drivers its real gap lacked
     gap_errors = uncertainty.artificial_gap_errors(
         nee_measured, noise, is_night,
-        lambda values, hidden: fill_nee(values, conditions.mask(hidden), index, is_night,
-                                        config, gaps=measured & np.isnan(values),
+        lambda values, hidden: fill_nee(values, with_hidden(conditions, hidden), index,
+                                        is_night, config, gaps=measured & np.isnan(values),
                                         values_only=True, sun_up=sun_up),
         seed=uncertainty.artificial_gap_seed(nee_measured), records_per_day=24 * 60 // interval,
         conditions_missing=conditions.isna().to_numpy())

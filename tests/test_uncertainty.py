@@ -1296,3 +1296,24 @@ def test_effective_records_follows_the_ar1_variance_inflation():
     assert effective_records(series, sparse) == sparse.sum()
     # never below 2 nor above the records used
     assert effective_records(np.cumsum(shocks), use) >= 2
+
+
+def test_hidden_drivers_match_pandas_mask():
+    """An artificial gap's hidden drivers: cell for cell pandas' ``DataFrame.mask`` (the
+    general-purpose reference), each column a contiguous float64 array; None: unchanged."""
+    from fluxpart.uncertainty_assembly import with_hidden
+
+    rng = np.random.default_rng(49)
+    index = pd.date_range("2021-01-01", periods=500, freq="30min")
+    conditions = pd.DataFrame(rng.normal(size=(500, 4)), index=index,
+                              columns=["rg", "tair", "vpd", "tsoil"])
+    conditions.iloc[rng.integers(0, 500, 40), 2] = np.nan      # a driver's own gaps
+    conditions["rg"] = conditions["rg"].to_numpy() * 100.0     # a second block
+    hidden = rng.random((500, 4)) < 0.2
+    before = conditions.copy()
+    got = with_hidden(conditions, hidden)
+    expected = conditions.mask(hidden)
+    pd.testing.assert_frame_equal(got, expected)
+    assert all(got[name].to_numpy().flags.c_contiguous for name in got.columns)
+    pd.testing.assert_frame_equal(conditions, before)           # the input untouched
+    assert with_hidden(conditions, None) is conditions
