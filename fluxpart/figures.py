@@ -44,6 +44,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from .constants import KELVIN_OFFSET, LLOYD_TAYLOR_TREF_KELVIN
 from .errors import LOADER_MEMORY_WORDS, FluxpartError
 from .responses import LASSLOP_VPD0_HPA, light_response, lloyd_taylor
 from .units import CARBON_UNIT, FLUX_UNIT, flux_to_carbon
@@ -68,6 +69,9 @@ FIGURES = (
 _DPI = 100
 _STEPS = (1, 2, 2.5, 5, 10)  # tick steps of matplotlib's automatic locator
 _FLUX_UNIT = FLUX_UNIT
+#: Rref with its reference temperature, as the tables describe it: a respiration rate
+#: read without its temperature says nothing (review54)
+_RREF = f"Rref at {LLOYD_TAYLOR_TREF_KELVIN - KELVIN_OFFSET:.0f} °C"
 _CARBON_UNIT = CARBON_UNIT
 _MONTHS = ("January", "February", "March", "April", "May", "June", "July", "August",
            "September", "October", "November", "December")
@@ -1592,7 +1596,7 @@ def figure_night_respiration(drawing, written, interval) -> Figure:
             # E0 is fitted per calendar year: a budget year across two shows both
             named = f"{year}: " if len(curves) > 1 else ""
             axis.plot(grid, lloyd_taylor(grid, rref, e0), color="#000000", linestyle=style,
-                      linewidth=1.5, label=f"{named}E0 = {e0:.0f} K, median Rref = "
+                      linewidth=1.5, label=f"{named}E0 = {e0:.0f} K, median {_RREF} = "
                       f"{rref:.2f} {_FLUX_UNIT}")
         if curves:
             axis.legend(loc="upper left")
@@ -1966,7 +1970,7 @@ def figure_light_response(drawing, written) -> Figure:
         # each parameter with its unit, as the page's window table gives them
         axis.text(0.98, 0.97, f"α = {window['alpha']:.4f} µmol J-1\n"
                   f"β0 = {window['beta0']:.1f} {_FLUX_UNIT}\nk = {window['k']:.3f} hPa-1\n"
-                  f"Rref = {window['rref']:.2f} {_FLUX_UNIT}"
+                  f"{_RREF} = {window['rref']:.2f} {_FLUX_UNIT}"
                   + (f"\ncurvature = {bend:.2f}" if bend > 0 else ""), transform=axis.transAxes,
                   ha="right", va="top", fontsize=7.5,
                   bbox={"facecolor": "white", "edgecolor": "#bbbbbb", "alpha": 0.85})

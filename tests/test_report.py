@@ -41,6 +41,7 @@ from fluxpart.figures import (
 from fluxpart.manifest import CAUTION, read_manifest
 from fluxpart.report import build_report, read_written
 from fluxpart.resultdir import check_folder
+from fluxpart.schema import describe
 
 matplotlib_image = pytest.importorskip("matplotlib.image")
 
@@ -586,7 +587,14 @@ def test_light_response_window_parameters_show_their_units(folder):
     for box in boxes:
         lines = dict(line.split(" = ") for line in box.splitlines())
         assert lines["α"].endswith(" µmol J-1") and lines["k"].endswith(" hPa-1")
-        assert lines["β0"].endswith(" µmol m-2 s-1") and lines["Rref"].endswith(" µmol m-2 s-1")
+        assert lines["β0"].endswith(" µmol m-2 s-1")
+        # Rref is the respiration at the Lloyd–Taylor reference temperature, 10 °C (Lloyd &
+        # Taylor 1994, eq. 11 (m)), as the parameter table describes it (review54)
+        assert lines["Rref at 10 °C"].endswith(" µmol m-2 s-1")
+    assert "reference respiration at 10 °C" in describe("parameters_daytime", "rref")[1]
+    _, axes = _painted(figures.figure_night_respiration, written, 30)
+    legends = [t.get_text() for a in axes if a.get_legend() for t in a.get_legend().get_texts()]
+    assert legends and all("median Rref at 10 °C = " in t for t in legends if "E0 =" in t)
 
 
 def _painted(painter, written, *args):
