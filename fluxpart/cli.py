@@ -69,8 +69,11 @@ def _format_annual(annual) -> str:
         from .units import T_CO2_HA_PER_G_C_M2
 
         # a partial year's tonnes are its records' sum, not a rate per year (review43)
+        # the tonnes are what a carbon-credit reader quotes: their interval says what it
+        # leaves out where it stands, not only in the g C table's heading (review54)
         lines += ["", "Net uptake [t CO2 ha-1 over each budget year's records; positive = "
-                  "uptake]:"]
+                  "uptake; ± 1 sigma and the 95 % interval are NEE's stated ones, systematic "
+                  "measurement errors not included]:"]
         for year, row in annual.iterrows():
             partial = ""
             if not row.get("complete", True) and row.get("records_expected", 0) > 0:
