@@ -347,12 +347,21 @@ def _command_run(args) -> int:
             # came from (`config` above only sizes the progress bar)
             result = process_site_config(args.config, progress=advance)
         result.write(out, lock_held=True)
-    print(f"fluxpart run: {result.site.name}, {len(result.timeseries)} records")
+    # the period read, as `demo` and `check` state it (review54: `run` named the site only)
+    stamps = result.timeseries.index
+    print(f"fluxpart run: {result.site.name}, {stamps[0]:%Y-%m-%d} to {stamps[-1]:%Y-%m-%d}, "
+          f"{len(stamps)} records")
     print()
     print(_format_annual(result.annual))
     for warning in result.warnings:
         print(f"warning: {warning}")
     print(f"\nWrote {shown_path(f'{out}/')} (Parquet tables and manifest.json)")
+    # `demo` draws its page; `run` leaves it to `report`, and says so (review54)
+    import shlex
+
+    shown = shown_path(out)      # quoted for the shell where a name needs it (spaces)
+    print(f"Figures and report page: fluxpart report "
+          f"{shlex.quote(shown) if shown == str(out) else shown}")
     print(f"Caution: {CAUTION}")
     return 0
 
