@@ -1688,7 +1688,10 @@ def figure_ustar(drawing, written) -> Figure:
                 low = float(annual_rows.loc[label, "threshold_p05"])
                 high = float(annual_rows.loc[label, "threshold_p95"])
                 if np.isfinite(low) and np.isfinite(high):
-                    left.axvspan(low, high, color=colour, alpha=0.15, linewidth=0)
+                    # named in the legend: an unlabelled band read as the threshold's
+                    # own width (review54)
+                    left.axvspan(low, high, color=colour, alpha=0.15, linewidth=0,
+                                 label=f"{label}: bootstrap 5–95 % of the threshold")
     if not means:
         _no_data(left, "too few night records for u* classes")
     else:
@@ -1722,7 +1725,8 @@ def figure_ustar(drawing, written) -> Figure:
     else:
         _no_data(right, "no bootstrap distribution\n(fixed threshold or no draws)")
     right.set_title("Bootstrap distribution of each calendar year's threshold", loc="left")
-    caption = ("Night NEE should level off above the dashed threshold (left; one colour per "
+    caption = ("Night NEE should level off above the dashed threshold (left, shaded: its "
+               "bootstrap 5–95 % range; one colour per "
                "calendar year of data, the period a threshold is detected for; the detector "
                "itself works by season and temperature class, Reichstein et al. 2005, Papale "
                "et al. 2006) and the bootstrap thresholds should cluster (right); a wide "

@@ -836,6 +836,21 @@ def test_the_u_star_figure_draws_the_calendar_years_the_thresholds_belong_to():
     assert list(figures._ustar_years(written, pd.DataFrame())) == [2021]
 
 
+def test_the_u_star_band_is_the_bootstrap_range_and_says_so(folder):
+    """The shaded band beside the dashed threshold is the year's bootstrap 5–95 % range
+    of the u* table (Papale et al. 2006 (m): the bootstrap of the night data); it was in
+    neither the legend nor the caption and read as the threshold's own width (review54)."""
+    written = read_written(folder["directory"])
+    drawn, axes = _painted(figures.figure_ustar, written)
+    texts = [t.get_text() for t in axes[0].get_legend().get_texts()]
+    assert "2021: bootstrap 5–95 % of the threshold" in texts
+    assert "shaded: its bootstrap 5–95 % range" in drawn.caption
+    row = written.table("ustar").query("period == 'year'").iloc[0]
+    band = next(p for p in axes[0].patches if p.get_label().endswith("of the threshold"))
+    x = band.get_path().transformed(band.get_patch_transform()).vertices[:, 0]
+    assert (min(x), max(x)) == pytest.approx((row["threshold_p05"], row["threshold_p95"]))
+
+
 def test_night_respiration_curves_use_each_calendar_years_e0():
     """E0 is fitted per calendar year of data (one short-term E0 per site-year, Reichstein et
     al. 2005 (m)); a July-June panel drew the first year's E0 alone, labelled as the whole
