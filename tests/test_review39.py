@@ -289,3 +289,16 @@ def test_diff_does_not_difference_a_year_label_over_two_periods():
                             table("2013-01-01", "2014-01-01", 110.9))
     assert same.at[(2013, "nee"), "change"] == pytest.approx(110.9 - 106.8)
     assert "cover other periods" not in DiffReport(Path("a"), Path("b"), (), same, 0).format()
+    # a budget year only one folder holds (year_start "07-01" of a calendar year: 2012
+    # and 2013) prints "-" for the other's absent values, dates and flags too: "None"
+    # read as a value the run wrote (review54)
+    second = pd.concat([table("2012-07-01", "2013-07-01", -40.0).set_axis(
+        pd.Index([2012], name="year")), table("2013-07-01", "2014-07-01", -31.5)]).assign(
+        complete=False)
+    moves, _ = _annual_moves(table("2013-01-01", "2014-01-01", 106.8).assign(complete=True),
+                             second)
+    text = DiffReport(Path("a"), Path("b"), (), moves, 0).format()
+    assert "None" not in text and "NaT" not in text
+    first_row = next(line for line in text.splitlines() if line.startswith("2012 "))
+    assert first_row.split()[1:3] == ["period_start", "-"]
+    assert moves.at[(2012, "complete"), "first"] is None      # the table keeps None
