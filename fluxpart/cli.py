@@ -92,6 +92,9 @@ def _format_annual(annual) -> str:
                     and math.isfinite(float(low)) and math.isfinite(float(high))):
                 interval = (f"; 95 % interval {-float(high) * T_CO2_HA_PER_G_C_M2:.2f} to "
                             f"{-float(low) * T_CO2_HA_PER_G_C_M2:.2f}")
+                if float(low) < 0.0 < float(high):
+                    # an interval over zero is no evidence of uptake or release (review54)
+                    interval += ", holding zero: uptake or release not told apart"
             # a negative uptake is a release: said in words, as the report does (review49)
             source = "a net release; " if row["net_uptake_t_co2_per_ha"] < 0 else ""
             lines.append(f"  {year}: {row['net_uptake_t_co2_per_ha']:.2f} ± "
