@@ -97,6 +97,9 @@ FILL_CATEGORIES = (
     ("unfilled", "#000000"),
 )
 _QUALITY_CODES = {0: "measured", 1: "A", 2: "B", 3: "C", -1: "unfilled", 4: "interpolated"}
+#: The fill classes as the legend names them: a bare "A", "B", "C" said nothing without
+#: the caption (review54)
+_FILL_LEGEND = {"A": "A: filled, most reliable", "B": "B: filled", "C": "C: filled, least reliable"}
 
 _RC = {
     "font.family": "DejaVu Sans",
@@ -1147,12 +1150,15 @@ def figure_fill_quality(drawing, written, interval) -> Figure:
     share = counts[with_records] / counts[with_records].sum(axis=1, keepdims=True)
     x = start + np.flatnonzero(with_records) + 0.5
     bottom.stackplot(x, *[share[:, names.index(n)] for n in present],
-                     colors=[colours[n] for n in present], labels=present, linewidth=0)
+                     colors=[colours[n] for n in present],
+                     labels=[_FILL_LEGEND.get(n, n) for n in present], linewidth=0)
     bottom.set_ylim(0, 1)
     drawing.fixed_ticks(bottom.yaxis, [0.0, 0.5, 1.0])
     bottom.set_ylabel("Share of the day")
     bottom.set_title("Daily share by fill quality", loc="left")
-    bottom.legend(loc="upper center", bbox_to_anchor=(0.5, -0.22), ncols=len(present))
+    # one row up to four classes; five or six (named, review54) take two rows of three
+    bottom.legend(loc="upper center", bbox_to_anchor=(0.5, -0.22),
+                  ncols=len(present) if len(present) <= 4 else 3)
     drawing.date_axis(bottom, ticks=13)
     top.set_xlim(start, start + n_days)
     top.set_xticks([])

@@ -982,6 +982,33 @@ def test_fill_quality_codes_and_labels_agree():
     assert list(fill_category(pd.Categorical([1, 0]))) == ["A", "measured"]
 
 
+def test_the_fill_legend_says_what_each_class_is_and_fits_the_figure():
+    """The legend of the fill-quality figure showed bare "A", "B", "C", which say nothing
+    without the caption (review54); each filled class now names itself, A the most and C
+    the least reliable (the classes of marginal distribution sampling, Reichstein et al.
+    2005 (m)), and with all six labels the legend still lies inside the figure, by
+    matplotlib's own window extents. Invented labels, one year of half-hours."""
+    index = pd.date_range("2021-01-01", periods=17520, freq="30min")
+    labels = np.array(["measured", "A", "B", "C", "interpolated", "unfilled"])
+    series = pd.DataFrame({"nee_fill_quality": labels[np.arange(len(index)) % 6],
+                           "nee_measured": 1.0, "nee_filled": 1.0}, index=index)
+    drawing = figures.Drawing()
+    made = []
+    draw = drawing.figure
+    drawing.figure = lambda *a, **k: made.append(draw(*a, **k)) or made[-1]
+    with drawing.mpl.rc_context():
+        figures.figure_fill_quality(drawing, Written(manifest={}, tables={
+            "timeseries": series}), 30)
+    figure = made[0]
+    legend = figure.axes[1].get_legend()
+    assert [t.get_text() for t in legend.get_texts()] == [
+        "measured", "A: filled, most reliable", "B: filled", "C: filled, least reliable",
+        "interpolated", "unfilled"]
+    renderer = figure.canvas.get_renderer()
+    box, page = legend.get_window_extent(renderer), figure.bbox
+    assert page.x0 <= box.x0 and box.x1 <= page.x1 and page.y0 <= box.y0, (box, page)
+
+
 def test_window_status_reads_strings_and_flags():
     """Status strings split into state and reason; an accepted window at a bound is marked."""
     parameters = pd.DataFrame({
