@@ -69,8 +69,11 @@ def _format_annual(annual) -> str:
         from .units import T_CO2_HA_PER_G_C_M2
 
         # a partial year's tonnes are its records' sum, not a rate per year (review43)
+        # the tonnes are what a carbon-credit reader quotes: their interval says what it
+        # leaves out where it stands, not only in the g C table's heading (review54)
         lines += ["", "Net uptake [t CO2 ha-1 over each budget year's records; positive = "
-                  "uptake]:"]
+                  "uptake; ± 1 sigma and the 95 % interval are NEE's stated ones, systematic "
+                  "measurement errors not included]:"]
         for year, row in annual.iterrows():
             partial = ""
             if not row.get("complete", True) and row.get("records_expected", 0) > 0:
@@ -89,6 +92,9 @@ def _format_annual(annual) -> str:
                     and math.isfinite(float(low)) and math.isfinite(float(high))):
                 interval = (f"; 95 % interval {-float(high) * T_CO2_HA_PER_G_C_M2:.2f} to "
                             f"{-float(low) * T_CO2_HA_PER_G_C_M2:.2f}")
+                if float(low) < 0.0 < float(high):
+                    # an interval over zero is no evidence of uptake or release (review54)
+                    interval += ", holding zero: uptake or release not told apart"
             # a negative uptake is a release: said in words, as the report does (review49)
             source = "a net release; " if row["net_uptake_t_co2_per_ha"] < 0 else ""
             lines.append(f"  {year}: {row['net_uptake_t_co2_per_ha']:.2f} ± "
@@ -344,12 +350,21 @@ def _command_run(args) -> int:
             # came from (`config` above only sizes the progress bar)
             result = process_site_config(args.config, progress=advance)
         result.write(out, lock_held=True)
-    print(f"fluxpart run: {result.site.name}, {len(result.timeseries)} records")
+    # the period read, as `demo` and `check` state it (review54: `run` named the site only)
+    stamps = result.timeseries.index
+    print(f"fluxpart run: {result.site.name}, {stamps[0]:%Y-%m-%d} to {stamps[-1]:%Y-%m-%d}, "
+          f"{len(stamps)} records")
     print()
     print(_format_annual(result.annual))
     for warning in result.warnings:
         print(f"warning: {warning}")
     print(f"\nWrote {shown_path(f'{out}/')} (Parquet tables and manifest.json)")
+    # `demo` draws its page; `run` leaves it to `report`, and says so (review54)
+    import shlex
+
+    shown = shown_path(out)      # quoted for the shell where a name needs it (spaces)
+    print(f"Figures and report page: fluxpart report "
+          f"{shlex.quote(shown) if shown == str(out) else shown}")
     print(f"Caution: {CAUTION}")
     return 0
 

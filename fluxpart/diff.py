@@ -122,6 +122,11 @@ class DiffReport:
                 lines.append("How the annual numbers moved (units of each column; change = "
                              "second - first; relative = change / |first|):")
                 shown = self.annual.copy()
+                # a year one folder lacks is "-" in every column: pandas prints an absent
+                # date or flag as "None" or "NaT" (review54), a number as na_rep
+                for column in ("first", "second"):
+                    if shown[column].dtype == object:
+                        shown[column] = shown[column].map(_absent_as_dash)
                 lines.append(shown.to_string(float_format=lambda v: f"{v:.6g}", na_rep="-"))
             lines.append(f"annual values equal in both: {self.same_annual}")
         lines.append(f"Caution: {CAUTION}")
@@ -301,6 +306,11 @@ def _other_periods(first: pd.DataFrame, second: pd.DataFrame) -> set:
                 if pd.notna(a) and pd.notna(b) and pd.Timestamp(a) != pd.Timestamp(b):
                     out.add(year)
     return out
+
+
+def _absent_as_dash(value):
+    """A value of the moves table as printed: "-" where it is absent (None, NaT, NaN)."""
+    return "-" if value is None or (np.ndim(value) == 0 and pd.isna(value)) else value
 
 
 def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFrame, int]:

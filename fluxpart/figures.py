@@ -44,6 +44,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from .constants import KELVIN_OFFSET, LLOYD_TAYLOR_TREF_KELVIN
 from .errors import LOADER_MEMORY_WORDS, FluxpartError
 from .responses import LASSLOP_VPD0_HPA, light_response, lloyd_taylor
 from .units import CARBON_UNIT, FLUX_UNIT, flux_to_carbon
@@ -68,6 +69,9 @@ FIGURES = (
 _DPI = 100
 _STEPS = (1, 2, 2.5, 5, 10)  # tick steps of matplotlib's automatic locator
 _FLUX_UNIT = FLUX_UNIT
+#: Rref with its reference temperature, as the tables describe it: a respiration rate
+#: read without its temperature says nothing (review54)
+_RREF = f"Rref at {LLOYD_TAYLOR_TREF_KELVIN - KELVIN_OFFSET:.0f} °C"
 _CARBON_UNIT = CARBON_UNIT
 _MONTHS = ("January", "February", "March", "April", "May", "June", "July", "August",
            "September", "October", "November", "December")
@@ -93,6 +97,9 @@ FILL_CATEGORIES = (
     ("unfilled", "#000000"),
 )
 _QUALITY_CODES = {0: "measured", 1: "A", 2: "B", 3: "C", -1: "unfilled", 4: "interpolated"}
+#: The fill classes as the legend names them: a bare "A", "B", "C" said nothing without
+#: the caption (review54)
+_FILL_LEGEND = {"A": "A: filled, most reliable", "B": "B: filled", "C": "C: filled, least reliable"}
 
 _RC = {
     "font.family": "DejaVu Sans",
@@ -1143,12 +1150,15 @@ def figure_fill_quality(drawing, written, interval) -> Figure:
     share = counts[with_records] / counts[with_records].sum(axis=1, keepdims=True)
     x = start + np.flatnonzero(with_records) + 0.5
     bottom.stackplot(x, *[share[:, names.index(n)] for n in present],
-                     colors=[colours[n] for n in present], labels=present, linewidth=0)
+                     colors=[colours[n] for n in present],
+                     labels=[_FILL_LEGEND.get(n, n) for n in present], linewidth=0)
     bottom.set_ylim(0, 1)
     drawing.fixed_ticks(bottom.yaxis, [0.0, 0.5, 1.0])
     bottom.set_ylabel("Share of the day")
     bottom.set_title("Daily share by fill quality", loc="left")
-    bottom.legend(loc="upper center", bbox_to_anchor=(0.5, -0.22), ncols=len(present))
+    # one row up to four classes; five or six (named, review54) take two rows of three
+    bottom.legend(loc="upper center", bbox_to_anchor=(0.5, -0.22),
+                  ncols=len(present) if len(present) <= 4 else 3)
     drawing.date_axis(bottom, ticks=13)
     top.set_xlim(start, start + n_days)
     top.set_xticks([])
@@ -1592,7 +1602,7 @@ def figure_night_respiration(drawing, written, interval) -> Figure:
             # E0 is fitted per calendar year: a budget year across two shows both
             named = f"{year}: " if len(curves) > 1 else ""
             axis.plot(grid, lloyd_taylor(grid, rref, e0), color="#000000", linestyle=style,
-                      linewidth=1.5, label=f"{named}E0 = {e0:.0f} K, median Rref = "
+                      linewidth=1.5, label=f"{named}E0 = {e0:.0f} K, median {_RREF} = "
                       f"{rref:.2f} {_FLUX_UNIT}")
         if curves:
             axis.legend(loc="upper left")
@@ -1684,7 +1694,10 @@ def figure_ustar(drawing, written) -> Figure:
                 low = float(annual_rows.loc[label, "threshold_p05"])
                 high = float(annual_rows.loc[label, "threshold_p95"])
                 if np.isfinite(low) and np.isfinite(high):
-                    left.axvspan(low, high, color=colour, alpha=0.15, linewidth=0)
+                    # named in the legend: an unlabelled band read as the threshold's
+                    # own width (review54)
+                    left.axvspan(low, high, color=colour, alpha=0.15, linewidth=0,
+                                 label=f"{label}: bootstrap 5–95 % of the threshold")
     if not means:
         _no_data(left, "too few night records for u* classes")
     else:
@@ -1718,7 +1731,8 @@ def figure_ustar(drawing, written) -> Figure:
     else:
         _no_data(right, "no bootstrap distribution\n(fixed threshold or no draws)")
     right.set_title("Bootstrap distribution of each calendar year's threshold", loc="left")
-    caption = ("Night NEE should level off above the dashed threshold (left; one colour per "
+    caption = ("Night NEE should level off above the dashed threshold (left, shaded: its "
+               "bootstrap 5–95 % range; one colour per "
                "calendar year of data, the period a threshold is detected for; the detector "
                "itself works by season and temperature class, Reichstein et al. 2005, Papale "
                "et al. 2006) and the bootstrap thresholds should cluster (right); a wide "
@@ -1966,7 +1980,7 @@ def figure_light_response(drawing, written) -> Figure:
         # each parameter with its unit, as the page's window table gives them
         axis.text(0.98, 0.97, f"α = {window['alpha']:.4f} µmol J-1\n"
                   f"β0 = {window['beta0']:.1f} {_FLUX_UNIT}\nk = {window['k']:.3f} hPa-1\n"
-                  f"Rref = {window['rref']:.2f} {_FLUX_UNIT}"
+                  f"{_RREF} = {window['rref']:.2f} {_FLUX_UNIT}"
                   + (f"\ncurvature = {bend:.2f}" if bend > 0 else ""), transform=axis.transAxes,
                   ha="right", va="top", fontsize=7.5,
                   bbox={"facecolor": "white", "edgecolor": "#bbbbbb", "alpha": 0.85})

@@ -365,6 +365,15 @@ def _unmeasured_note(written: Written, label, mask) -> str:
             "light responses there come from windows of other months).</p>")
 
 
+def _spans_zero(kind, low, high) -> str:
+    """The headline's clause where NEE's stated 95 % interval holds zero: "took up net 379
+    g C m-2" over an interval from -1154 to +396 read as a sink (review54)."""
+    if kind == "ci95" and _finite(low) and _finite(high) and float(low) < 0.0 < float(high):
+        return (" The interval holds zero: this record does not tell a net uptake from a "
+                "net release.")
+    return ""
+
+
 def _summary_card(written: Written) -> tuple[str, bool]:
     """The summary per budget period; also whether a combined (non-95 %) uncertainty is shown."""
     annual = written.annual
@@ -420,7 +429,7 @@ def _summary_card(written: Written) -> tuple[str, bool]:
             f"{_number(abs(nee), 0, 'nee_abs', label, _CARBON_UNIT)} of carbon: "
             f"NEE {_number(nee, 1, 'nee', label, _CARBON_UNIT)} "
             f"({_interval_html(kind, low, high, 1, 'nee', label, row)}), {tonnes} "
-            f"({t_interval}).</p>")
+            f"({t_interval}).{_spans_zero(kind, low, high)}</p>")
         headline += _unmeasured_note(written, label, periods[label][3])
         flux_rows = []
         for part in ("gpp", "reco"):

@@ -161,13 +161,38 @@ NOT_QUANTIFIED = (
     "lateral carbon fluxes and harvest export (outside the tower's view)",
 )
 _NOT_COVERED = "not included: " + "; ".join(NOT_QUANTIFIED)
+#: The parts each total adds in quadrature (fluxpart.uncertainty.period_uncertainty):
+#: every partitioned flux's total also holds the choice of respiration temperature and of
+#: respiration form (review54: the descriptions named neither, though both are added).
+_STRUCTURE = ("partitioning, respiration temperature (reco_uncertainty_temperature_driver) "
+              "and respiration form ({form})")
 _TOTAL_PARTS = {
     "nee": "random, gap filling and u* threshold",
     "gpp_nighttime": "random and gap filling of the records outside the night, u* threshold, "
-                     "fitted parameters and partitioning",
-    "reco_nighttime": "u* threshold, fitted parameters (E0, Rref) and partitioning",
-    "gpp_daytime": "u* threshold, fitted parameters (Rref of the windows) and partitioning",
-    "reco_daytime": "u* threshold, fitted parameters (Rref of the windows) and partitioning",
+                     "fitted parameters, "
+                     + _STRUCTURE.format(form="reco_uncertainty_respiration_form"),
+    "reco_nighttime": "u* threshold, fitted parameters (E0, Rref), "
+                      + _STRUCTURE.format(form="reco_uncertainty_respiration_form"),
+    "gpp_daytime": "u* threshold, fitted parameters (Rref of the windows), "
+                   + _STRUCTURE.format(form="reco_daytime_uncertainty_respiration_form"),
+    "reco_daytime": "u* threshold, fitted parameters (Rref of the windows), "
+                    + _STRUCTURE.format(form="reco_daytime_uncertainty_respiration_form"),
+}
+#: What each method's fitted-parameter part holds (fluxpart.uncertainty.period_uncertainty):
+#: the daytime windows' Rref is fitted with the year's pooled E0 held fixed, and the error
+#: of that E0 is not propagated (review54: the description claimed it was).
+_PARAMETER_PARTS = {
+    "gpp_nighttime": "the fitted E0 and window Rref, and Rref interpolated between window "
+                     "centres, over the records outside the night",
+    "reco_nighttime": "the fitted E0 and window Rref, and Rref interpolated between window "
+                      "centres",
+    "gpp_daytime": "the Rref of the light-response windows (fitted with the year's pooled E0 "
+                   "held fixed; that E0's own error is not counted), Rref interpolated between "
+                   "window centres, and across a stretch of more than 14 days without a "
+                   "window the change of the light response at an unknown time",
+    "reco_daytime": "the Rref of the light-response windows (fitted with the year's pooled E0 "
+                    "held fixed; that E0's own error is not counted) and Rref interpolated "
+                    "between window centres",
 }
 
 #: Unit and description of the uncertainty and carbon-accounting columns of the budget
@@ -280,8 +305,8 @@ for _flux in _FLUXES:
             f"(carbon; sum {_sign} 1.96 x {_flux}_uncertainty_total); {_NOT_COVERED}")
 for _flux in _FLUXES[1:]:
     UNCERTAINTY_COLUMNS[f"{_flux}_uncertainty_parameters"] = (
-        CARBON, f"1 sigma: fitted-parameter part of {_flux} (carbon): the fitted E0 and "
-        "window Rref, and Rref interpolated between window centres")
+        CARBON, f"1 sigma: fitted-parameter part of {_flux} (carbon): "
+        f"{_PARAMETER_PARTS[_flux]}")
 del _flux, _end, _sign, _word
 
 #: Unit and description of the random-error model tables

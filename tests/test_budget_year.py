@@ -199,7 +199,10 @@ def test_cli_net_uptake_of_a_partial_year_is_not_headed_per_year():
                            "ustar_threshold": [0.2]}, index=pd.Index([2022], name="year"))
     text = _format_annual(annual)
     assert "per year" not in text
-    assert "Net uptake [t CO2 ha-1 over each budget year's records; positive = uptake]" in text
+    assert "Net uptake [t CO2 ha-1 over each budget year's records; positive = uptake;" in text
+    # the interval beside the tonnes leaves out what NEE's leaves out, said there (review54)
+    heading = next(line for line in text.splitlines() if line.startswith("Net uptake ["))
+    assert "systematic measurement errors not included" in heading
     assert "partial year, 3.6 months: not an annual total" in text
     # the tonnes are NEE's: a harvest's carbon is not in them (review46, a maize field's
     # 18 t CO2 ha-1 printed without a word on its harvest)

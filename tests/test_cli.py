@@ -69,6 +69,10 @@ def test_run_writes_the_result_folder(example, tmp_path, capsys):
     assert main(["run", str(example), "--out", str(out_dir)]) == 0
     printed = capsys.readouterr().out
     assert "Annual budget" in printed and CAUTION.split(".")[0] in printed.replace("\n", " ")
+    # the period read heads the output, as demo's does, and the next step is named
+    # (review54: a new user expected the report page `demo` draws)
+    assert printed.splitlines()[0].endswith(", 2021-01-01 to 2021-12-31, 17520 records")
+    assert f"Figures and report page: fluxpart report {out_dir}" in printed
     manifest = json.loads((out_dir / "manifest.json").read_text())
     assert len(manifest["provenance"]["input"]["sha256"]) == 64
     annual = pd.read_parquet(out_dir / "annual.parquet")

@@ -41,6 +41,7 @@ from fluxpart.figures import (
 from fluxpart.manifest import CAUTION, read_manifest
 from fluxpart.report import build_report, read_written
 from fluxpart.resultdir import check_folder
+from fluxpart.schema import describe
 
 matplotlib_image = pytest.importorskip("matplotlib.image")
 
@@ -586,7 +587,14 @@ def test_light_response_window_parameters_show_their_units(folder):
     for box in boxes:
         lines = dict(line.split(" = ") for line in box.splitlines())
         assert lines["α"].endswith(" µmol J-1") and lines["k"].endswith(" hPa-1")
-        assert lines["β0"].endswith(" µmol m-2 s-1") and lines["Rref"].endswith(" µmol m-2 s-1")
+        assert lines["β0"].endswith(" µmol m-2 s-1")
+        # Rref is the respiration at the Lloyd–Taylor reference temperature, 10 °C (Lloyd &
+        # Taylor 1994, eq. 11 (m)), as the parameter table describes it (review54)
+        assert lines["Rref at 10 °C"].endswith(" µmol m-2 s-1")
+    assert "reference respiration at 10 °C" in describe("parameters_daytime", "rref")[1]
+    _, axes = _painted(figures.figure_night_respiration, written, 30)
+    legends = [t.get_text() for a in axes if a.get_legend() for t in a.get_legend().get_texts()]
+    assert legends and all("median Rref at 10 °C = " in t for t in legends if "E0 =" in t)
 
 
 def _painted(painter, written, *args):
@@ -828,6 +836,21 @@ def test_the_u_star_figure_draws_the_calendar_years_the_thresholds_belong_to():
     assert list(figures._ustar_years(written, pd.DataFrame())) == [2021]
 
 
+def test_the_u_star_band_is_the_bootstrap_range_and_says_so(folder):
+    """The shaded band beside the dashed threshold is the year's bootstrap 5–95 % range
+    of the u* table (Papale et al. 2006 (m): the bootstrap of the night data); it was in
+    neither the legend nor the caption and read as the threshold's own width (review54)."""
+    written = read_written(folder["directory"])
+    drawn, axes = _painted(figures.figure_ustar, written)
+    texts = [t.get_text() for t in axes[0].get_legend().get_texts()]
+    assert "2021: bootstrap 5–95 % of the threshold" in texts
+    assert "shaded: its bootstrap 5–95 % range" in drawn.caption
+    row = written.table("ustar").query("period == 'year'").iloc[0]
+    band = next(p for p in axes[0].patches if p.get_label().endswith("of the threshold"))
+    x = band.get_path().transformed(band.get_patch_transform()).vertices[:, 0]
+    assert (min(x), max(x)) == pytest.approx((row["threshold_p05"], row["threshold_p95"]))
+
+
 def test_night_respiration_curves_use_each_calendar_years_e0():
     """E0 is fitted per calendar year of data (one short-term E0 per site-year, Reichstein et
     al. 2005 (m)); a July-June panel drew the first year's E0 alone, labelled as the whole
@@ -957,6 +980,33 @@ def test_fill_quality_codes_and_labels_agree():
     categorical = pd.Categorical(["A", "measured"], categories=["measured", "A", "unfilled"])
     assert list(fill_category(categorical)) == ["A", "measured"]
     assert list(fill_category(pd.Categorical([1, 0]))) == ["A", "measured"]
+
+
+def test_the_fill_legend_says_what_each_class_is_and_fits_the_figure():
+    """The legend of the fill-quality figure showed bare "A", "B", "C", which say nothing
+    without the caption (review54); each filled class now names itself, A the most and C
+    the least reliable (the classes of marginal distribution sampling, Reichstein et al.
+    2005 (m)), and with all six labels the legend still lies inside the figure, by
+    matplotlib's own window extents. Invented labels, one year of half-hours."""
+    index = pd.date_range("2021-01-01", periods=17520, freq="30min")
+    labels = np.array(["measured", "A", "B", "C", "interpolated", "unfilled"])
+    series = pd.DataFrame({"nee_fill_quality": labels[np.arange(len(index)) % 6],
+                           "nee_measured": 1.0, "nee_filled": 1.0}, index=index)
+    drawing = figures.Drawing()
+    made = []
+    draw = drawing.figure
+    drawing.figure = lambda *a, **k: made.append(draw(*a, **k)) or made[-1]
+    with drawing.mpl.rc_context():
+        figures.figure_fill_quality(drawing, Written(manifest={}, tables={
+            "timeseries": series}), 30)
+    figure = made[0]
+    legend = figure.axes[1].get_legend()
+    assert [t.get_text() for t in legend.get_texts()] == [
+        "measured", "A: filled, most reliable", "B: filled", "C: filled, least reliable",
+        "interpolated", "unfilled"]
+    renderer = figure.canvas.get_renderer()
+    box, page = legend.get_window_extent(renderer), figure.bbox
+    assert page.x0 <= box.x0 and box.x1 <= page.x1 and page.y0 <= box.y0, (box, page)
 
 
 def test_window_status_reads_strings_and_flags():

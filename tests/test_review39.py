@@ -289,3 +289,54 @@ def test_diff_does_not_difference_a_year_label_over_two_periods():
                             table("2013-01-01", "2014-01-01", 110.9))
     assert same.at[(2013, "nee"), "change"] == pytest.approx(110.9 - 106.8)
     assert "cover other periods" not in DiffReport(Path("a"), Path("b"), (), same, 0).format()
+    # a budget year only one folder holds (year_start "07-01" of a calendar year: 2012
+    # and 2013) prints "-" for the other's absent values, dates and flags too: "None"
+    # read as a value the run wrote (review54)
+    second = pd.concat([table("2012-07-01", "2013-07-01", -40.0).set_axis(
+        pd.Index([2012], name="year")), table("2013-07-01", "2014-07-01", -31.5)]).assign(
+        complete=False)
+    moves, _ = _annual_moves(table("2013-01-01", "2014-01-01", 106.8).assign(complete=True),
+                             second)
+    text = DiffReport(Path("a"), Path("b"), (), moves, 0).format()
+    assert "None" not in text and "NaT" not in text
+    first_row = next(line for line in text.splitlines() if line.startswith("2012 "))
+    assert first_row.split()[1:3] == ["period_start", "-"]
+    assert moves.at[(2012, "complete"), "first"] is None      # the table keeps None
+
+
+def test_an_interval_over_zero_is_said_to_tell_no_sink_from_a_source():
+    """A year with eight unmeasured months (an invented upland grassland, review54):
+    NEE -379.3 g C m-2 with its stated 95 % interval -1154.3 to +395.6 was headed "The
+    ecosystem took up net 379 g C m-2" and printed as "13.90 ± 14.49 (1 sigma; 95 %
+    interval -14.50 to 42.29 ...)", with nothing saying that the interval holds both a
+    sink and a source. Now the page and `run` say so; an interval on one side of zero
+    gets no such clause. Invented numbers; tonnes as 44.009 / 12.011 x 0.01 (m)."""
+    from fluxpart import report
+    from fluxpart.cli import _format_annual
+    from fluxpart.figures import Written
+
+    def annual(low, high):
+        return pd.DataFrame({
+            "nee": [-379.3], "complete": [True], "records": [17520],
+            "records_expected": [17520], "records_unfilled": [0],
+            "net_uptake_t_co2_per_ha": [379.3 * T_PER_G],
+            "net_uptake_t_co2_per_ha_uncertainty": [395.4 * T_PER_G],
+            "nee_ci95_low": [low], "nee_ci95_high": [high], "ustar_threshold": [0.149]},
+            index=pd.Index([2023], name="year"))
+
+    index = pd.date_range("2023-01-01", "2023-12-31 23:30", freq="30min")
+    clause = "The interval holds zero: this record does not tell a net uptake from a net release."
+    for (low, high), said in (((-1154.3, 395.6), True), ((-386.1, -372.5), False)):
+        written = Written(manifest={}, tables={
+            "timeseries": pd.DataFrame({"nee_filled": -1.0}, index=index),
+            "annual": annual(low, high)})
+        summary, _ = report._summary_card(written)
+        headline = re.search(r'<p class="headline">(.*?)</p>', summary, re.S).group(1)
+        plain = " ".join(html.unescape(re.sub(r"<[^>]+>", "", headline)).split())
+        assert (clause in plain) is said, plain
+        line = next(line for line in _format_annual(annual(low, high)).splitlines()
+                    if line.startswith("  2023: "))
+        assert ("holding zero: uptake or release not told apart" in line) is said, line
+        if said:
+            assert (f"95 % interval {-high * T_PER_G:.2f} to {-low * T_PER_G:.2f}, holding "
+                    "zero") in line

@@ -209,3 +209,37 @@ def test_catalogue_covers_the_uncertainty_columns():
         assert tuple(uncertainty.NOT_QUANTIFIED) == schema.NOT_QUANTIFIED
     for part in schema.NOT_QUANTIFIED:
         assert part in describe("annual", "nee_ci95_high")[1]
+
+
+def test_each_total_names_every_part_it_adds(written_demo):
+    """A partitioned flux's ``_uncertainty_total`` (and ``_sigma``) is the root sum of
+    squares of its parts (fluxpart.uncertainty.period_uncertainty), the choice of
+    respiration temperature and of respiration form among them; the descriptions named
+    neither (review54: a reader summing the named parts of the demo's daytime GPP got
+    less than the total). The parts the description names by column, with the u*,
+    parameter and partitioning parts every partitioned flux has, give the total back."""
+    annual = written_demo[0].annual
+    for flux in ("gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
+        text = describe("annual", f"{flux}_uncertainty_total")[1]
+        assert describe("daily", f"{flux}_sigma")[1].split("(carbon; ")[1] == \
+            text.split("(carbon; ")[1]
+        named = re.findall(r"\(((?:gpp|reco)\w*_uncertainty_\w+)\)", text)
+        method = flux.split("_")[1]
+        form = ("reco_uncertainty_respiration_form" if method == "nighttime"
+                else "reco_daytime_uncertainty_respiration_form")
+        assert named == ["reco_uncertainty_temperature_driver", form], (flux, named)
+        parts = [f"{flux}_uncertainty_ustar", f"{flux}_uncertainty_parameters",
+                 f"{flux.split('_')[0]}_uncertainty_partitioning", *named]
+        if flux == "gpp_nighttime":
+            parts += ["gpp_nighttime_uncertainty_random", "gpp_nighttime_uncertainty_gapfill"]
+        total = annual[f"{flux}_uncertainty_total"].to_numpy(dtype=float)
+
+        def root_sum_of_squares(columns):
+            return np.sqrt(np.nansum(np.square(annual[columns].to_numpy(dtype=float)), axis=1))
+
+        assert root_sum_of_squares(parts) == pytest.approx(total, rel=1e-12)
+        # the demo's temperature part is not zero: the parts named before fall short
+        assert (root_sum_of_squares([c for c in parts if c not in named]) < total).all()
+    # the daytime parameter part is the windows' Rref only: no E0 claimed
+    assert "E0's own error is not counted" in describe("annual",
+                                                       "gpp_daytime_uncertainty_parameters")[1]
