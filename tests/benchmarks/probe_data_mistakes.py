@@ -140,7 +140,7 @@ def soil_at_50cm(frame, text):
     daily = soil.rolling(PER_DAY * 15, center=True, min_periods=PER_DAY).mean()
     mean = float(soil.mean())
     deep = mean + (daily - mean) * np.exp(-0.5 / 2.0)
-    deep = pd.Series(np.roll(deep.bfill().ffill().to_numpy(), PER_DAY * 13))
+    deep = pd.Series(np.roll(deep.interpolate(limit_direction="both").to_numpy(), PER_DAY * 13))
     return _with(frame, "soil_temp_5cm", np.round(deep.to_numpy(), 2)), text
 
 
