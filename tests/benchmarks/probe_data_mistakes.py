@@ -14,14 +14,17 @@ from __future__ import annotations
 import argparse
 import sys
 import tempfile
-import warnings
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
 
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+
+from probe_settings_mistakes import SUMS, print_outcome  # noqa: E402
+from probe_settings_mistakes import run as run_config  # noqa: E402
+
 EXAMPLE = Path(__file__).resolve().parents[2] / "examples" / "quillmoor_grassland.toml"
-SUMS = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
 MISSING = -9999.0
 PER_DAY = 48
 
@@ -189,6 +192,17 @@ def nee_of_another_field(frame, text):
     return out, text
 
 
+def weather_of_another_year(frame, text):
+    """The weather columns of another year's file joined to this year's fluxes by date."""
+    from fluxpart.demo import write_example
+    with tempfile.TemporaryDirectory() as tmp:
+        other = pd.read_csv(write_example(tmp, seed=5).with_suffix(".csv"))
+    out = frame.copy()
+    columns = ["solar_down", "air_temp_c", "vpd_kpa", "soil_temp_5cm", "rel_humidity"]
+    out[columns] = other[columns].to_numpy()
+    return out, text
+
+
 def filled_flag_unmapped(frame, text):
     """Another tool's gap fills left in (mean diurnal course of 7 days), flag not mapped."""
     nee = frame["co2_exchange"].replace(MISSING, np.nan)
@@ -305,6 +319,7 @@ CASES = {
     "kinematic flux w'c' as NEE": kinematic_nee,
     "July of another site pasted": month_of_another_site,
     "July NEE of another field (weather kept)": nee_of_another_field,
+    "weather of another year joined": weather_of_another_year,
     "gap fills left in, flag unmapped": filled_flag_unmapped,
     "missing codes per column": codes_per_column,
     "tair stuck 5 days": stuck_tair,
@@ -320,18 +335,9 @@ CASES = {
 
 
 def run(frame: pd.DataFrame, text: str, folder: Path):
-    from fluxpart.errors import FluxpartError
-    from fluxpart.pipeline import process_site_config
+    """The settings probe's run on ``frame`` written as the example's file in ``folder``."""
     frame.to_csv(folder / "quillmoor_grassland.csv", index=False)
-    config = folder / "site.toml"
-    config.write_text(text)
-    try:
-        with warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always")
-            result = process_site_config(config)
-    except FluxpartError as error:
-        return None, str(error).splitlines()[0], ()
-    return result, None, tuple(result.warnings) + tuple(str(w.message) for w in caught)
+    return run_config(text, folder)
 
 
 def main(argv=None) -> int:
@@ -349,19 +355,7 @@ def main(argv=None) -> int:
         for name, edit in CASES.items():
             if args.only and not any(o in name for o in args.only):
                 continue
-            result, error, found = run(*edit(clean_frame, text), folder)
-            if error:
-                print(f"{name}: REFUSED {error[:300]}")
-                continue
-            new = [w for w in found if w not in clean_warnings]
-            row = result.annual.iloc[0]
-            moves = ", ".join(
-                f"{s} {row[s] - base[s]:+.1f} ({(row[s] - base[s]) / base[s + '_uncertainty_total']:+.1f}σ)"
-                for s in SUMS)
-            print(f"{name}: {'WARNED' if new else 'SILENT'} {moves}")
-            for w in dict.fromkeys(new):
-                print(f"    - {w[:300]}")
-            sys.stdout.flush()
+            print_outcome(name, run(*edit(clean_frame, text), folder), clean_warnings, base)
     return 0
 
 
