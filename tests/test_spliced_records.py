@@ -51,6 +51,16 @@ def test_a_pasted_month_is_named_and_a_storm_or_a_sensor_swap_is_not():
     swapped = soil.copy()
     swapped[4000:] += 3.0
     assert spliced_records(air, swapped, index) is None
+    # a deep probe (a 5-day mean, to 0.01 K) whose reading jumps by 0.3 K at two of the
+    # air's largest changes: 3 times its own changes but no soil of another place
+    year, year_air, year_soil = _site(days=365)
+    deep = np.round(pd.Series(year_soil).rolling(240, center=True).mean().bfill().ffill()
+                    .to_numpy(), 2)
+    order = np.argsort(np.abs(np.diff(year_air)))[::-1] + 1
+    jumps = [order[0], next(j for j in order if abs(j - order[0]) > 48)]
+    noisy = deep.copy()
+    noisy[jumps] += 0.3
+    assert spliced_records(year_air, noisy, year) is None
     _, other_air, other_soil = _site(mean=18.0, seed=1)
     pasted_air, pasted_soil = air.copy(), soil.copy()
     month = slice(2000, 2000 + 30 * 48 + 7)      # joints at 7:00 and 10:30
