@@ -38,7 +38,7 @@ def test_damping_depth_of_the_daily_wave_is_about_a_tenth_of_a_metre():
 
 
 def test_a_pasted_month_is_named_and_a_storm_or_a_sensor_swap_is_not():
-    """Known-truth recovery: a month of another invented site (6 K warmer, its own
+    """Known-truth recovery: a month of another invented site (10 K warmer, its own
     weather) pasted in is named at both joints, through the preflight too; one storm
     (air -6 K and soil -2 K in a record, rain on a warm soil) and a soil probe replaced
     with a 3 K offset (the soil steps alone) are not."""
@@ -61,7 +61,7 @@ def test_a_pasted_month_is_named_and_a_storm_or_a_sensor_swap_is_not():
     noisy = deep.copy()
     noisy[jumps] += 0.3
     assert spliced_records(year_air, noisy, year) is None
-    _, other_air, other_soil = _site(mean=18.0, seed=1)
+    _, other_air, other_soil = _site(mean=22.0, seed=1)
     pasted_air, pasted_soil = air.copy(), soil.copy()
     month = slice(2000, 2000 + 30 * 48 + 7)      # joints at 7:00 and 10:30
     pasted_air[month], pasted_soil[month] = other_air[month], other_soil[month]
