@@ -63,6 +63,24 @@ def _tails(nee, night, active):
             low, high)
 
 
+#: Night median of NEE below which the nights read as no respiration [µmol m-2 s-1]:
+#: ecosystem respiration at night is 0.5-10 µmol m-2 s-1 wherever a canopy takes up CO2
+#: by day (Lloyd & Taylor 1994 (m)); our choice of its low end. Only the message reads it.
+_NIGHT_RESPIRATION_MIN = 0.5
+
+
+def _other_quantity(night_median: float) -> str:
+    """The message's second cause where the nights hold no respiration (round mistakes44):
+    a flux of another quantity that rises by day and is near 0 at night (a water vapour
+    flux in mmol m-2 s-1 gave a night median of 0.06 and was named as NEE negated by day)."""
+    if night_median >= _NIGHT_RESPIRATION_MIN:
+        return ""
+    return (f"; its nights, though, hold no respiration (median below "
+            f"{_NIGHT_RESPIRATION_MIN:g} µmol m-2 s-1), which fits another quantity that "
+            "rises by day and rests near 0 at night better: a water vapour flux (mmol m-2 "
+            "s-1) or a heat flux mapped as nee; check the mapping first")
+
+
 def day_sign_reversed(nee, rg, tair, potential, stamps, columns=None) -> str | None:
     """A message where NEE looks negated by day only, or None.
 
@@ -135,4 +153,4 @@ def day_sign_reversed(nee, rg, tair, potential, stamps, columns=None) -> str | N
             f"{shown}{more}, falling in no month: photosynthesis draws NEE down by day. "
             "A sign convention applied to the day records only (uptake positive where "
             "the sun is up) reverses the whole daytime exchange; check how the column "
-            "was made and give NEE positive = release at every hour")
+            f"was made and give NEE positive = release at every hour{_other_quantity(night_median)}")

@@ -116,6 +116,7 @@ from . import (
     rg_dim,
     rg_zeros,
     solar,
+    spliced_records,
     tair_days,
     ustar_prefilter,
     vpd_soil,
@@ -427,6 +428,12 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                         index, interval_minutes, names)
         if text:
             findings.append(Finding("input (tair = tsoil)", text, False))
+        # a stretch of another file's records pasted in (round mistakes44)
+        text = spliced_records.spliced_records(screened["tair"].to_numpy(dtype=float),
+                                               screened["tsoil"].to_numpy(dtype=float),
+                                               index, names)
+        if text:
+            findings.append(Finding(spliced_records.STAGE, text, False))
     if {"nee", "rg"} <= set(screened.columns):
         # a shift of hours first (round mistakes23): where one beyond two hours is clearly
         # best, nee_lag would name only the widest of its own (two hours)

@@ -833,6 +833,21 @@ def _changed_months_warning(name: str, columns: dict, what: str, months: list) -
             "correct them in a copy of the file"]
 
 
+#: Median of a column's values at and above which values all within 0-100 read as a
+#: relative humidity in % rather than a VPD [file unit]. Our choice: air over land holds
+#: a median relative humidity of 50-90 % (m), while a VPD median of 30 hPa or more is a
+#: desert's, whose values exceed 100 hPa (saturation at 45 degC, 96 hPa).
+_RH_LIKE_MEDIAN = 30.0
+
+
+def _relative_humidity_like(values) -> bool:
+    """Whether a column's values (in the file's unit) all lie within 0-100 with a median
+    of :data:`_RH_LIKE_MEDIAN` or more, as a relative humidity in % does."""
+    values = values[np.isfinite(values)]
+    return bool(values.size and values.min() >= 0.0 and values.max() <= 100.0
+                and np.median(values) >= _RH_LIKE_MEDIAN)
+
+
 def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes: int):
     """VPD off by a factor 10 (kPa read as hPa, or hPa read as kPa)."""
     vpd, tair = converted.get("vpd"), converted.get("tair")
@@ -862,6 +877,15 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
                                   / declared_scale, 99) >= 0.1]
         fix = (f"the values look like {fits[0]!r}: set [input.units] vpd = \"{fits[0]}\""
                if fits else "check the column mapping and [input.units] vpd")
+        raw = vpd[both] / declared_scale
+        if _relative_humidity_like(raw):
+            # a relative humidity mapped as vpd (round mistakes44): a smaller unit would
+            # read a deficit of 1 hPa or less throughout, a saturated air the too-small
+            # test refuses in turn, so no unit is offered
+            fix = (f"the values look like a relative humidity in % (all within 0-100, "
+                   f"median {np.median(raw):.3g}): map that column as rh in "
+                   "[input.columns] (vpd is then derived from rh and tair) and vpd to the "
+                   "deficit, if the file holds one")
         return (f"column {columns['vpd']!r} (vpd, read as {shown!r}): {100 * above.mean():.0f} % "
                 "of records exceed the saturation vapour pressure at tair (median "
                 f"{np.median(ratio):.3g} times it), which no air can; {fix} (or list vpd in "

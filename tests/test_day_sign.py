@@ -55,6 +55,23 @@ def test_the_demo_negated_by_day_is_named_and_clean_years_are_quiet():
         assert day_sign_reversed(*_args(year.frame, potential)) is None
 
 
+def test_a_water_vapour_flux_as_nee_is_named_with_that_cause():
+    """Known truth on the demo's weather: an evaporation of 0.4 Rg over the latent heat of
+    vaporisation, 44 kJ mol-1 at 25 degC (Monteith & Unsworth 2013 (m)), is 0-7 mmol m-2
+    s-1 by day and near 0 at night. Mapped as NEE it was named as NEE negated by day
+    only, a fix that writes a water flux as uptake; the message names the other quantity
+    where the nights hold no respiration, and not for the demo's day-negated NEE."""
+    frame, potential = _demo()
+    rg = frame["rg"].to_numpy(float)
+    flipped = np.where(rg > 10.0, -frame["nee"].to_numpy(float), frame["nee"].to_numpy(float))
+    assert "water vapour" not in day_sign_reversed(*_args(frame, potential, flipped))
+    rng = np.random.default_rng(4)
+    water = 0.4 * np.clip(rg, 0.0, None) / 44.0 + 0.05 + rng.normal(0.0, 0.2, rg.size)
+    water[np.isnan(frame["nee"].to_numpy(float))] = np.nan
+    text = day_sign_reversed(*_args(frame, potential, water))
+    assert text is not None and "water vapour flux (mmol m-2 s-1)" in text
+
+
 def test_the_whole_column_negated_or_some_months_are_left_to_their_checks():
     """A column negated at every hour has its nights an uptake (the reader's refusal);
     negated from July only leaves months falling with light (the month check's): this

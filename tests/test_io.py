@@ -792,6 +792,19 @@ def test_pa_declared_hpa(tmp_path):
         _read(_write(tmp_path / "t.csv", records))
 
 
+def test_relative_humidity_mapped_as_vpd_is_named_not_offered_pa(tmp_path):
+    """RH in % (45-90) in the VPD column, read as hPa, exceeds the saturation vapour
+    pressure at 12-20 degC (14.0-23.4 hPa, Magnus form, WMO-No. 8 (m)); read as Pa it
+    would be a deficit below 1 hPa, an air near saturation all day. The refusal named
+    'Pa' as the fix (round mistakes44); it names a relative humidity now."""
+    records = _records()
+    records["vpd_air"] = records["rel_hum"]
+    with pytest.raises(ImplausibleValueError, match=r"vpd, read as 'hPa'.*look like a "
+                       r"relative humidity in %") as caught:
+        _read(_write(tmp_path / "t.csv", records))
+    assert "'Pa'" not in str(caught.value)
+
+
 def test_rh_fraction_declared_percent(tmp_path):
     """RH that never exceeds 1.05 % is a fraction: error with the fix."""
     records = _records()

@@ -157,6 +157,23 @@ def run(text: str, folder: Path):
     return result, None, tuple(result.warnings) + tuple(str(w.message) for w in caught)
 
 
+def print_outcome(name: str, outcome, clean_warnings, base) -> None:
+    """Print a case's outcome of :func:`run`: refused, or warned (its new warnings) or
+    silent, with the moves of the annual sums against the clean run's 1 sigma."""
+    result, error, found = outcome
+    if error:
+        print(f"{name}: REFUSED {error[:300]}")
+        return
+    new = [w for w in found if w not in clean_warnings]
+    row = result.annual.iloc[0]
+    moves = ", ".join(f"{s} {row[s] - base[s]:+.1f} ({(row[s] - base[s]) / base[s + '_uncertainty_total']:+.1f}σ)"
+                      for s in SUMS)
+    print(f"{name}: {'WARNED' if new else 'SILENT'} {moves}")
+    for w in dict.fromkeys(new):
+        print(f"    - {w[:300]}")
+    sys.stdout.flush()
+
+
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser()
     parser.add_argument("--only", nargs="*", default=None)
@@ -176,19 +193,7 @@ def main(argv=None) -> int:
         for name, edit in cases.items():
             if args.only and not any(o in name for o in args.only):
                 continue
-            result, error, found = run(edit(text), folder)
-            if error:
-                print(f"{name}: REFUSED {error[:300]}")
-                continue
-            new = [w for w in found if w not in clean_warnings]
-            row = result.annual.iloc[0]
-            moves = ", ".join(f"{s} {row[s] - base[s]:+.1f} ({(row[s] - base[s]) / base[s + '_uncertainty_total']:+.1f}σ)"
-                              for s in SUMS)
-            kind = "WARNED" if new else "SILENT"
-            print(f"{name}: {kind} {moves}")
-            for w in dict.fromkeys(new):
-                print(f"    - {w[:300]}")
-            sys.stdout.flush()
+            print_outcome(name, run(edit(text), folder), clean_warnings, base)
     return 0
 
 

@@ -1,0 +1,130 @@
+"""Records of another file spliced into the record (round mistakes44).
+
+A stretch of another tower's (or another year's) records pasted into a site's file, to
+fill an outage or by a slip of a spreadsheet, passes every range, clock and sign check
+where the other tower stands at a similar latitude: its sun, its units and its signs are
+right. Its fluxes, though, are another ecosystem's (on the invented grassland example a
+July of an invented maize field pasted in moved annual NEE by -217 g C m-2, 24 sigma,
+without a word). Where the pasted records carry their own weather, the joint shows: the
+soil temperature, which heat conduction keeps from changing fast, steps at one record far
+beyond any change of the rest of the record (ten times its largest), and the air temperature steps at that same
+record too. A thunderstorm over a hot soil can do this once, so two such joints are
+needed.
+
+References
+----------
+Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental Biophysics,
+2nd ed. Springer, ch. 8 (heat conduction in soil: the daily wave damped as exp(-z/d), d
+about 0.1 m) (m)
+"""
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+__all__ = ["STAGE", "SOIL_STEP_FACTOR", "spliced_records"]
+
+#: The stage named in the preflight finding.
+STAGE = "input (spliced records)"
+
+#: Quantile of the soil temperature's record-to-record changes taken as its own largest
+#: change [1]: the 99.9th percentile, beyond the few records of storms of a year.
+_TAIL = 99.9
+#: Quantile of the air temperature's changes its step at a joint reaches [1]: the 99th
+#: percentile, the top 1 % (a soil that steps alone, a probe replaced or a stuck sensor
+#: coming back, coincides with a change that large once in a hundred).
+_AIR_TAIL = 99.0
+#: Factor by which a soil temperature's step at a joint exceeds the record's own largest
+#: changes (its :data:`_TAIL` percentile) [1]. Our choice, an order of magnitude: heat
+#: conduction damps and delays any change at the surface on its way down (Campbell &
+#: Norman 1998, ch. 8 (m)), so a soil's largest changes, a storm's rain on a hot surface,
+#: form a tail of similar steps, while another site's or year's soil differs by its whole
+#: weather. Measured (``tests/benchmarks/bench_spliced_records.py``): the largest step of
+#: 68 generated site-years and the ten-year demo is 1.1-1.3 times the tail; a trial whose
+#: weather generator joins its days at midnight (trial seventeenth) steps its soil up to
+#: 8.4 times (named at 3 times in 3 of its site configs); the next site-year's July pasted
+#: is named in 41 of 68 (49 at 3 times; the rest with a joint in a gap or the air alike).
+SOIL_STEP_FACTOR = 10.0
+#: Smallest soil step at a joint [K]. Our choice: a deep probe's changes are a few
+#: hundredths of a K, so a reading's noise of a few tenths would stand 10 times beyond them;
+#: another site's or year's soil differs from this one's by K.
+_MIN_SOIL_STEP = 1.0
+#: Fewest joints that name the record [1]: a pasted stretch inside the record has two,
+#: a storm gives one.
+_MIN_JOINTS = 2
+#: Fewest pairs of consecutive records with both temperatures present for the tail to
+#: be judged [1]: 30 days of half-hours (our choice).
+_MIN_PAIRS = 1440
+
+
+def spliced_records(tair, tsoil, index=None, names=None) -> str | None:
+    """A message naming joints where both temperatures step beyond the record's own, or None.
+
+    Parameters
+    ----------
+    tair, tsoil : array_like
+        Air and soil temperature of each record [degC], NaN where missing, consecutive
+        records.
+    index : pandas.DatetimeIndex, optional
+        Interval starts, to name the joints.
+    names : dict, optional
+        Canonical name -> file column, to name the columns.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where fewer than two records (:data:`_MIN_JOINTS`) see the
+        soil temperature change from the previous record by more than
+        :data:`SOIL_STEP_FACTOR` times the 99.9th percentile of its changes (and by more
+        than 1 K) and the air temperature, at the same record, by its 99th percentile or
+        more; or where fewer than 1440 pairs of consecutive records hold both
+        temperatures.
+
+    Notes
+    -----
+    Only changes between consecutive records, both present, count: a gap lets any
+    temperature change. A soil temperature of exactly 0 on either side is left to the
+    check of zeros written for missing values (``column_faults.zero_coded_temperature``).
+    A stuck sensor that comes back steps as well, but in its own column alone.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 8 (m).
+    """
+    air = np.asarray(tair, dtype=float)
+    soil = np.asarray(tsoil, dtype=float)
+    if air.size < 2 or air.shape != soil.shape:
+        return None
+    air_step = np.abs(np.diff(air))
+    soil_step = np.abs(np.diff(soil))
+    with np.errstate(invalid="ignore"):
+        pairs = (np.isfinite(air_step) & np.isfinite(soil_step)
+                 & (soil[1:] != 0) & (soil[:-1] != 0))
+    if pairs.sum() < _MIN_PAIRS:
+        return None
+    air_tail = np.percentile(air_step[pairs], _AIR_TAIL)
+    soil_tail = np.percentile(soil_step[pairs], _TAIL)
+    joints = np.flatnonzero(pairs & (soil_step > max(SOIL_STEP_FACTOR * soil_tail,
+                                                     _MIN_SOIL_STEP))
+                            & (air_step >= air_tail)) + 1
+    if joints.size < _MIN_JOINTS:
+        return None
+    names = names or {}
+    if index is not None and len(index) == air.size:
+        stamps = pd.DatetimeIndex(index)
+        where = ", ".join(f"{stamps[j]:%Y-%m-%d %H:%M} (tsoil {soil_step[j - 1]:.1f} K, "
+                          f"tair {air_step[j - 1]:.1f} K)"
+                          for j in joints[:4])
+    else:
+        where = ", ".join(f"record {j}" for j in joints[:4])
+    more = f" and {joints.size - 4} more" if joints.size > 4 else ""
+    return (f"soil temperature (column {names.get('tsoil', 'tsoil')!r}) and air temperature "
+            f"(column {names.get('tair', 'tair')!r}) step together at {joints.size} records "
+            f"({where}{more}): the soil by more than {SOIL_STEP_FACTOR:g} times its largest "
+            f"changes elsewhere ({soil_tail:.2f} K, the 99.9th percentile), the air by its "
+            f"largest ({air_tail:.2f} K); heat conduction lets no soil jump so, so records of "
+            "another file (another tower's or year's, pasted to fill an outage) join the "
+            "record there, and their fluxes would enter as this site's (a storm's rain on "
+            "a hot, bare soil steps both too, once: check those dates' weather); check the "
+            "file between these stamps and mark pasted records missing in a copy")

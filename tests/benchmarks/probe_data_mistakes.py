@@ -1,0 +1,363 @@
+"""Probe: plausible mistakes in the data a tower team hands over (round mistakes44).
+
+Each case edits a copy of the grassland example's file (``examples/quillmoor_grassland.csv``,
+fictional) as a user's spreadsheet, logger or merge would, writes it beside a copy of its
+site config, runs ``process_site_config`` (what ``run`` calls) and prints whether it was
+refused (the error line), warned (new warnings against the clean run) or silent, and the
+moves of the annual NEE, GPP and Reco against the clean run's stated 1 sigma.
+
+    PYTHONPATH=$PWD python tests/benchmarks/probe_data_mistakes.py [--only NAME ...]
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+import tempfile
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+
+from probe_settings_mistakes import SUMS, print_outcome  # noqa: E402
+from probe_settings_mistakes import run as run_config  # noqa: E402
+
+EXAMPLE = Path(__file__).resolve().parents[2] / "examples" / "quillmoor_grassland.toml"
+MISSING = -9999.0
+PER_DAY = 48
+
+
+def _stamps(frame):
+    return pd.to_datetime(frame["stamp_end"].astype(str), format="%Y%m%d%H%M")
+
+
+def _months(frame, months):
+    return _stamps(frame).dt.month.isin(months).to_numpy()
+
+
+def _with(frame, column, values):
+    out = frame.copy()
+    out[column] = values
+    return out
+
+
+def _present(frame, column):
+    return frame[column].to_numpy() != MISSING
+
+
+def _set_unit(text, key, unit):
+    return text.replace("[input.units]\n", f"[input.units]\n{key} = \"{unit}\"\n", 1)
+
+
+def two_years_same_stamps(frame, text):
+    return pd.concat([frame, frame], ignore_index=True), text
+
+
+def two_years_same_data(frame, text):
+    later = frame.copy()
+    later["stamp_end"] = (_stamps(frame) + pd.DateOffset(years=1)).dt.strftime("%Y%m%d%H%M")
+    return pd.concat([frame, later], ignore_index=True), text
+
+
+def two_years_same_stamps_new_values(frame, text):
+    """A second year's file whose stamps were written with the first year's."""
+    from fluxpart.demo import write_example
+    with tempfile.TemporaryDirectory() as tmp:
+        other = pd.read_csv(write_example(tmp, seed=5).with_suffix(".csv"),
+                            dtype={"stamp_end": str})
+    return pd.concat([frame, other], ignore_index=True), text
+
+
+def logger_replay(frame, text):
+    """The last three months a copy of the first three (a logger's memory replayed)."""
+    out = frame.copy()
+    target = np.flatnonzero(_months(frame, [10, 11, 12]))
+    source = np.arange(len(target))
+    columns = [c for c in frame.columns if c != "stamp_end"]
+    out.loc[target, columns] = frame.loc[source, columns].to_numpy()
+    return out, text
+
+
+def hourly_by_sum(frame, text, nee_only=False):
+    """Resampled to hourly records with ``.sum()`` (NEE only, or every column)."""
+    data = frame.replace(MISSING, np.nan)
+    data.index = _stamps(frame)
+    groups = data.drop(columns="stamp_end").resample("1h", closed="right", label="right")
+    summed = groups.sum(min_count=2)
+    if nee_only:
+        summed = groups.mean().assign(co2_exchange=summed["co2_exchange"])
+    summed["qc_co2"] = groups["qc_co2"].max()
+    summed.insert(0, "stamp_end", summed.index.strftime("%Y%m%d%H%M"))
+    return summed.fillna(MISSING).reset_index(drop=True), text
+
+
+def hourly_by_default_sum(frame, text):
+    """Resampled to hourly records with ``.sum()`` as pandas defaults: 0 for an empty hour."""
+    data = frame.replace(MISSING, np.nan)
+    data.index = _stamps(frame)
+    groups = data.drop(columns="stamp_end").resample("1h", closed="right", label="right")
+    out = groups.mean().assign(co2_exchange=groups["co2_exchange"].sum(),
+                               qc_co2=groups["qc_co2"].max())
+    out.insert(0, "stamp_end", out.index.strftime("%Y%m%d%H%M"))
+    return out.fillna(MISSING).reset_index(drop=True), text
+
+
+def rg_an_hour_east(frame, text):
+    """Rg of a station 15 degrees east: its sun rises an hour earlier."""
+    rg = frame["solar_down"].to_numpy()
+    return _with(frame, "solar_down", np.r_[rg[2:], rg[-2:]]), text
+
+
+def par_umol_as_rg(frame, text):
+    rg = frame["solar_down"].to_numpy()
+    return _with(frame, "solar_down", np.where(rg == MISSING, MISSING, rg * 2.11)), text
+
+
+def par_watts_as_rg(frame, text):
+    rg = frame["solar_down"].to_numpy()
+    return _with(frame, "solar_down", np.where(rg == MISSING, MISSING, rg * 0.46)), text
+
+
+def rh_as_vpd_hpa(frame, text):
+    text = text.replace('vpd = "kPa"', 'vpd = "hPa"')
+    return _with(frame, "vpd_kpa", frame["rel_humidity"].to_numpy()), text
+
+
+def shelter_in_sun(frame, text):
+    """Air temperature of a shelter in the sun: up to 5 K warm in full sun."""
+    tair, rg = frame["air_temp_c"].to_numpy(), frame["solar_down"].to_numpy()
+    heat = 5.0 * np.clip(rg / 800.0, 0.0, 1.0)
+    return _with(frame, "air_temp_c", np.where(tair == MISSING, MISSING,
+                                               np.round(tair + heat, 2))), text
+
+
+def soil_at_50cm(frame, text):
+    """A soil probe at 50 cm: no daily cycle, the seasonal one damped and two weeks late.
+
+    Heat conduction, damping depth about 2 m for the annual wave and 0.1 m for the
+    daily one (Campbell and Norman 1998, ch. 8 (m)).
+    """
+    soil = frame["soil_temp_5cm"].replace(MISSING, np.nan)
+    daily = soil.rolling(PER_DAY * 15, center=True, min_periods=PER_DAY).mean()
+    mean = float(soil.mean())
+    deep = mean + (daily - mean) * np.exp(-0.5 / 2.0)
+    deep = pd.Series(np.roll(deep.interpolate(limit_direction="both").to_numpy(), PER_DAY * 13))
+    return _with(frame, "soil_temp_5cm", np.round(deep.to_numpy(), 2)), text
+
+
+def ustar_cm(frame, text):
+    u = frame["friction_velocity"].to_numpy()
+    return _with(frame, "friction_velocity", np.where(u == MISSING, MISSING, u * 100)), text
+
+
+def water_flux_as_nee(frame, text):
+    """The H2O flux in mmol m-2 s-1 (evaporation: about 0.4 Rg / 44 kJ mol-1)."""
+    rng = np.random.default_rng(4)
+    rg = frame["solar_down"].replace(MISSING, 0.0).clip(lower=0).to_numpy()
+    water = 0.4 * rg / 44.0 + 0.05 + rng.normal(0, 0.2, len(rg))
+    nee = frame["co2_exchange"].to_numpy()
+    return _with(frame, "co2_exchange", np.where(nee == MISSING, MISSING,
+                                                 np.round(water, 3))), text
+
+
+def kinematic_nee(frame, text):
+    """The covariance w'c' in µmol mol-1 m s-1: NEE over the molar density, about 41."""
+    nee = frame["co2_exchange"].to_numpy()
+    return _with(frame, "co2_exchange", np.where(nee == MISSING, MISSING,
+                                                 np.round(nee / 41.0, 4))), text
+
+
+def month_of_another_site(frame, text):
+    """July of another (fictional) site's file pasted over this one's."""
+    from fluxpart.demo import write_example
+    with tempfile.TemporaryDirectory() as tmp:
+        other = pd.read_csv(write_example(tmp, seed=7, variant="c4").with_suffix(".csv"))
+    july = _months(frame, [7])
+    out = frame.copy()
+    columns = [c for c in frame.columns if c != "stamp_end"]
+    out.loc[july, columns] = other.loc[july, columns].to_numpy()
+    return out, text
+
+
+def nee_of_another_field(frame, text):
+    """July's NEE of another (fictional) field pasted over an outage; the weather kept."""
+    from fluxpart.demo import write_example
+    with tempfile.TemporaryDirectory() as tmp:
+        other = pd.read_csv(write_example(tmp, seed=7, variant="c4").with_suffix(".csv"))
+    july = _months(frame, [7])
+    out = frame.copy()
+    out.loc[july, "co2_exchange"] = other.loc[july, "co2_exchange"].to_numpy()
+    return out, text
+
+
+def weather_of_another_year(frame, text):
+    """The weather columns of another year's file joined to this year's fluxes by date."""
+    from fluxpart.demo import write_example
+    with tempfile.TemporaryDirectory() as tmp:
+        other = pd.read_csv(write_example(tmp, seed=5).with_suffix(".csv"))
+    out = frame.copy()
+    columns = ["solar_down", "air_temp_c", "vpd_kpa", "soil_temp_5cm", "rel_humidity"]
+    out[columns] = other[columns].to_numpy()
+    return out, text
+
+
+def filled_flag_unmapped(frame, text):
+    """Another tool's gap fills left in (mean diurnal course of 7 days), flag not mapped."""
+    nee = frame["co2_exchange"].replace(MISSING, np.nan)
+    stamps = _stamps(frame)
+    week = (np.arange(len(frame)) // (PER_DAY * 7))
+    fills = nee.groupby([week, stamps.dt.hour * 2 + stamps.dt.minute // 30]).transform("mean")
+    filled = nee.fillna(fills).fillna(MISSING).round(3)
+    return _with(frame, "co2_exchange", filled.to_numpy()), text.replace(
+        'nee_flag = "qc_co2"\n', "")
+
+
+def codes_per_column(frame, text):
+    """Missing codes of three logger programs: -6999 in tair, 9999 in u*, -999 in tsoil."""
+    out = frame.copy()
+    for column, code in (("air_temp_c", -6999.0), ("friction_velocity", 9999.0),
+                         ("soil_temp_5cm", -999.0)):
+        values = out[column].to_numpy()
+        out[column] = np.where(values == MISSING, code, values)
+    rng = np.random.default_rng(2)
+    for column, code in (("air_temp_c", -6999.0), ("friction_velocity", 9999.0),
+                         ("soil_temp_5cm", -999.0)):
+        lost = rng.random(len(out)) < 0.03
+        out.loc[lost, column] = code
+    return out, text
+
+
+def _stuck(frame, column, start, days):
+    values = frame[column].to_numpy().copy()
+    begin = int(np.flatnonzero(_stamps(frame) >= pd.Timestamp(start))[0])
+    values[begin:begin + days * PER_DAY] = values[begin - 1]
+    return _with(frame, column, values)
+
+
+def stuck_tair(frame, text):
+    return _stuck(frame, "air_temp_c", "2021-06-10 12:00", 5), text
+
+
+def stuck_ustar(frame, text):
+    return _stuck(frame, "friction_velocity", "2021-08-03 02:00", 6), text
+
+
+def zero_for_missing(frame, text):
+    nee = frame["co2_exchange"].to_numpy()
+    return _with(frame, "co2_exchange", np.where(nee == MISSING, 0.0, nee)), text
+
+
+def daily_mean_tair(frame, text):
+    """A climate station's daily mean air temperature written into each record."""
+    tair = frame["air_temp_c"].replace(MISSING, np.nan)
+    day = (_stamps(frame) - pd.Timedelta(minutes=1)).dt.date
+    mean = tair.groupby(day.to_numpy()).transform("mean").round(2).fillna(MISSING)
+    return _with(frame, "air_temp_c", mean.to_numpy()), text
+
+
+def hourly_rg_repeated(frame, text):
+    """Hourly Rg (a station's, or a satellite product's) repeated in both half-hours."""
+    rg = frame["solar_down"].replace(MISSING, np.nan).to_numpy()
+    pairs = np.nanmean(rg.reshape(-1, 2), axis=1)
+    return _with(frame, "solar_down", np.round(np.repeat(pairs, 2), 1)), text
+
+
+def net_radiation_clipped(frame, text):
+    """Net radiation (about 0.7 Rg - 50 W m-2) with its negative values written 0."""
+    rg = frame["solar_down"].to_numpy()
+    net = np.clip(0.7 * rg - 50.0, 0.0, None)
+    return _with(frame, "solar_down", np.where(rg == MISSING, MISSING, np.round(net, 1))), text
+
+
+def flag_inverted(frame, text):
+    """The quality flag written 2 for good and 0 for bad (another convention)."""
+    flag = frame["qc_co2"].to_numpy()
+    return _with(frame, "qc_co2", np.where(flag == 0, 2, 0)), text
+
+
+def tair_tenths(frame, text):
+    tair = frame["air_temp_c"].to_numpy()
+    return _with(frame, "air_temp_c", np.where(tair == MISSING, MISSING,
+                                               np.round(tair * 10))), text
+
+
+def vpd_hpa_declared_kpa(frame, text):
+    vpd = frame["vpd_kpa"].to_numpy()
+    return _with(frame, "vpd_kpa", np.where(vpd == MISSING, MISSING, vpd * 10)), text
+
+
+def nee_despiked_to_median(frame, text):
+    """Values beyond 3 MAD of a day's records replaced by the day's median (a spreadsheet)."""
+    nee = frame["co2_exchange"].replace(MISSING, np.nan)
+    day = np.arange(len(frame)) // PER_DAY
+    median = nee.groupby(day).transform("median")
+    spread = (nee - median).abs().groupby(day).transform("median")
+    wild = (nee - median).abs() > 3 * 1.4826 * spread
+    out = nee.where(~wild, median).round(3).fillna(MISSING)
+    return _with(frame, "co2_exchange", out.to_numpy()), text
+
+
+CASES = {
+    "two years, the second with the first's stamps": two_years_same_stamps,
+    "two years, the second a copy of the first": two_years_same_data,
+    "two years' files, both with the first's stamps": two_years_same_stamps_new_values,
+    "Oct-Dec a replay of Jan-Mar": logger_replay,
+    "hourly by .sum() (every column)": hourly_by_sum,
+    "hourly by .sum() (NEE only)": lambda f, t: hourly_by_sum(f, t, nee_only=True),
+    "hourly by .sum() (NEE, pandas' 0 for empty hours)": hourly_by_default_sum,
+    "Rg of a station 15 degrees east": rg_an_hour_east,
+    "PAR (µmol) mapped as Rg": par_umol_as_rg,
+    "PAR (W m-2) mapped as Rg": par_watts_as_rg,
+    "RH % in the VPD column (hPa)": rh_as_vpd_hpa,
+    "VPD in hPa declared kPa": vpd_hpa_declared_kpa,
+    "tair of a shelter in the sun (+5 K)": shelter_in_sun,
+    "soil at 50 cm as tsoil": soil_at_50cm,
+    "u* in cm s-1": ustar_cm,
+    "H2O flux (mmol) as NEE": water_flux_as_nee,
+    "kinematic flux w'c' as NEE": kinematic_nee,
+    "July of another site pasted": month_of_another_site,
+    "July NEE of another field (weather kept)": nee_of_another_field,
+    "weather of another year joined": weather_of_another_year,
+    "gap fills left in, flag unmapped": filled_flag_unmapped,
+    "missing codes per column": codes_per_column,
+    "tair stuck 5 days": stuck_tair,
+    "u* stuck 6 days": stuck_ustar,
+    "NEE 0 for missing": zero_for_missing,
+    "daily-mean tair in each record": daily_mean_tair,
+    "hourly Rg repeated per half-hour": hourly_rg_repeated,
+    "net radiation (clipped at 0) as Rg": net_radiation_clipped,
+    "flag inverted (2 good, 0 bad)": flag_inverted,
+    "tair in tenths of °C": tair_tenths,
+    "NEE spikes set to the day's median": nee_despiked_to_median,
+}
+
+
+def run(frame: pd.DataFrame, text: str, folder: Path):
+    """The settings probe's run on ``frame`` written as the example's file in ``folder``."""
+    frame.to_csv(folder / "quillmoor_grassland.csv", index=False)
+    return run_config(text, folder)
+
+
+def main(argv=None) -> int:
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--only", nargs="*", default=None)
+    args = parser.parse_args(argv)
+    text = EXAMPLE.read_text()
+    clean_frame = pd.read_csv(EXAMPLE.with_suffix(".csv"), dtype={"stamp_end": str})
+    with tempfile.TemporaryDirectory() as tmp:
+        folder = Path(tmp)
+        clean, _, clean_warnings = run(clean_frame, text, folder)
+        base = clean.annual.iloc[0]
+        print("clean:", ", ".join(f"{s} {base[s]:.1f} (1σ {base[s + '_uncertainty_total']:.1f})"
+                                   for s in SUMS))
+        for name, edit in CASES.items():
+            if args.only and not any(o in name for o in args.only):
+                continue
+            print_outcome(name, run(*edit(clean_frame, text), folder), clean_warnings, base)
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())
