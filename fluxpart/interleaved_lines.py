@@ -168,6 +168,32 @@ def note_lines(lines: list, first_data: int, delimiter: str, width: int, note_ma
     return notes, marks_used.pop()
 
 
+def changed_units(lines: list, header_at: int, again_at: int, rows_after_header: int,
+                  delimiter: str) -> list:
+    """``(name, first, later)`` for each column whose cell in the lines under a repeated
+    header (at `again_at`) differs from its cell in the lines under the file's own header
+    (at `header_at`): a units (or processing) line written anew when a logger's program or
+    firmware changed a column's unit. Empty where those lines are equal, or where a line
+    differs in width from the header (no cell stands under one name).
+
+    Blanks and quotes around a cell are no difference ("W m-2" is W m-2).
+    """
+    def cells(line):
+        return [cell.strip().strip('"').strip() for cell in _split(line, delimiter)]
+
+    names = cells(lines[header_at])
+    changes = []
+    for offset in range(1, rows_after_header + 1):
+        if again_at + offset >= len(lines):
+            return []
+        first, later = cells(lines[header_at + offset]), cells(lines[again_at + offset])
+        if len(first) != len(names) or len(later) != len(names):
+            return []
+        changes += [(name, a, b) for name, a, b in zip(names, first, later, strict=True)
+                    if a != b]
+    return changes
+
+
 def ranges(indices: list) -> str:
     """0-based line indices as 1-based line numbers in runs: "12, 40-42"."""
     runs, start, previous = [], None, None
