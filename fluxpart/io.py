@@ -3127,9 +3127,19 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
     if blocks:
         what = ("header line" if not rows_before_header + rows_after_header
                 else "header line with its title and units lines")
+        otherwise = [pair for block in blocks for pair in
+                     interleaved_lines.rewritten_lines(lines, block, rows_before_header)]
+        same = "the same characters (a logger program restarted?)"
+        if otherwise:
+            # a title naming the program's new version, units in another notation
+            # (layouts40): named, so that the user sees what else the block says
+            same = ("a logger program restarted or updated: " + "; ".join(
+                f"{'title' if own < rows_before_header else 'units'} line {own + 1} "
+                f"{lines[own].strip()[:80]!r} written {lines[again].strip()[:80]!r} on "
+                f"line {again + 1}" for own, again in otherwise[:3]))
         warnings.append(
             f"input file {str(path)!r}: the {what} written again {len(blocks)} time(s) "
-            "among the records, the same characters (a logger program restarted?), on "
+            f"among the records, {same}, on "
             f"{_lines_word(skipped)} {interleaved_lines.ranges(sorted(skipped))}: skipped")
     kept = [("" if index in skipped else line) for index, line in enumerate(lines)]
     width = (interleaved_lines.field_count(lines[rows_before_header], delimiter)

@@ -543,6 +543,112 @@ def firmware_update_adds_a_column(folder):
     second_block(folder, UNITS + ["V"], battery)
 
 
+# --------------------------------------------------------------------------- more of the same kinds
+@case
+def quoted_remark_holding_a_line_break(folder):
+    raw, _ = table()
+    notes = np.where(np.arange(len(raw)) % 499 == 7, '"visit: analyser cleaned,\nzero checked"', "")
+    raw.insert(8, "remark", notes)
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv")
+
+
+@case
+def semicolon_decimal_comma_words_trailing_bom_crlf(folder):
+    raw, _ = table()
+    raw = raw.apply(lambda c: c.str.replace(".", ",", regex=False))
+    for j, column in enumerate(raw.columns[1:8]):
+        at = raw[column] == "-9999"
+        raw.loc[at, column] = [["NaN", "-INF", ""][(i + j) % 3] for i in range(int(at.sum()))]
+    write(folder / "t.csv", [line + ";" for line in lines(raw, sep=";")], ending="\r\n",
+          encoding="utf-8-sig")
+    toml(folder, "t.csv", delimiter=";", decimal=",")
+
+
+@case
+def portal_comment_lines_above_header_declared(folder):
+    def edit(text, raw):
+        return ["# Quillmoor tower 2 (fictional)", "# exported 2022-01-04 by the data portal",
+                "# missing values: -9999"] + text
+
+    edited(folder, edit, rows_before_header=3)
+
+
+@case
+def portal_comment_lines_above_header_undeclared(folder):
+    def edit(text, raw):
+        return ["# Quillmoor tower 2 (fictional)", "# exported 2022-01-04 by the data portal",
+                "# missing values: -9999"] + text
+
+    edited(folder, edit)
+    return "refused"
+
+
+@case
+def stamp_as_last_column(folder):
+    raw, _ = table()
+    write(folder / "t.csv", lines(raw[list(raw.columns[1:]) + ["stamp"]]))
+    toml(folder, "t.csv")
+
+
+@case
+def record_written_twice_seconds_apart(folder):
+    raw, ends = table()
+    raw["stamp"] = stamps(ends, "%Y-%m-%d %H:%M:%S")
+    text = lines(raw)
+    cells = text[5001].split(",")
+    cells[0] = cells[0][:-2] + "04"
+    cells[3] = f"{float(cells[3]) + 0.4:.2f}"
+    write(folder / "t.csv", text[:5002] + [",".join(cells)] + text[5002:])
+    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M:%S")
+    return "refused"
+
+
+@case
+def clock_set_back_a_few_records_half_a_minute_off(folder):
+    raw, ends = table()
+    off = np.zeros(len(raw), dtype=int)
+    off[7000:7004] = 35
+    raw["stamp"] = stamps(ends + pd.to_timedelta(off, unit="s"), "%Y-%m-%d %H:%M:%S")
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M:%S")
+    return "refused"
+
+
+@case
+def zip_of_data_and_readme(folder):
+    (folder / "t.zip").write_bytes(zipped([
+        ("quillmoor_2021.csv", plain_bytes()),
+        ("README.txt", b"Quillmoor tower 2 (fictional): half-hourly records, -9999 missing\n")]))
+    toml(folder, "t.zip")
+    return "refused"
+
+
+@case
+def firmware_update_title_line_changes_only(folder):
+    raw, ends = table()
+    cut = (ends > "2021-07-01").to_numpy()
+    text = (["Quillmoor tower 2 (fictional) program qm_flux_v7", ",".join(raw.columns),
+             UNITS_LINE] + lines(raw[~cut], header=False)
+            + ["Quillmoor tower 2 (fictional) program qm_flux_v8", ",".join(raw.columns),
+               UNITS_LINE] + lines(raw[cut], header=False))
+    write(folder / "t.csv", text)
+    toml(folder, "t.csv", rows_before_header=1, rows_after_header=1)
+
+
+@case
+def firmware_update_units_respelled(folder):
+    second_block(folder, ["-", "umol/m2/s", "W/m2", "degC", "kPa", "m/s", "degC", "%", "-"])
+
+
+@case
+def flag_column_of_words(folder):
+    raw, _ = table()
+    raw["co2_grade"] = raw["co2_grade"].map({"0": "ok", "1": "check", "2": "bad"})
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", flag_accept=["ok"])
+
+
 # --------------------------------------------------------------------------- judging
 def judge(name, folder, base_tables, cli):
     try:
