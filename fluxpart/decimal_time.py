@@ -96,9 +96,12 @@ def decimal_stamps(text: pd.Series, time_format: str) -> tuple[pd.Series, str, i
         day = pd.Series([f"{int(v):03d}" if np.isfinite(v) else "" for v in whole],
                         index=text.index)
         written = parts["head"] + day + " " + clock
+    count = int((usable & fraction).sum())
+    if not count:
+        return text, time_format, 0
     rewritten = text.where(~usable, written)
-    return rewritten, time_format.rstrip() + (":%M:%S" if directive == "%H" else " %H:%M:%S"), \
-        int((usable & fraction).sum())
+    return (rewritten, time_format.rstrip() + (":%M:%S" if directive == "%H" else " %H:%M:%S"),
+            count)
 
 
 def _clock_text(seconds: np.ndarray) -> list:
