@@ -51,6 +51,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from . import (
+    bracket_names,
     digit_grouping,
     flux_rate_labels,
     footers,
@@ -2764,6 +2765,32 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
 _MAX_HEADER_FIELDS = 16384
 
 
+def _bracketed_unit_names(path: Path, text: str, rows_before_header: int,
+                          rows_after_header: int, warnings) -> str:
+    """`text` with a whitespace-delimited header whose bracketed units hold blanks
+    ("co2_net [umol m-2 s-1]") written as one word a name (their blanks as
+    :data:`fluxpart.bracket_names.PLACEHOLDER`, restored once parsed), where only that
+    split gives one name a field of the first record (:mod:`fluxpart.bracket_names`;
+    layouts40: refused before as a header of more names than the records hold)."""
+    text_lines = text.splitlines(keepends=True)
+    at = rows_before_header
+    record = next((line for line in text_lines[at + 1 + rows_after_header:]
+                   if line.strip()), None)
+    if at >= len(text_lines) or record is None:
+        return text
+    names = bracket_names.bracket_names(text_lines[at], record)
+    if names is None:
+        return text
+    if warnings is not None:
+        warnings.append(
+            f"input file {str(path)!r}: the header (line {at + 1}) read as {len(names)} "
+            "names split at the blanks outside their bracketed units (" + ", ".join(
+                repr(name) for name in names if " " in name)[:160] + "), one a field")
+    ending = text_lines[at][len(text_lines[at].rstrip("\r\n")):]
+    text_lines[at] = bracket_names.placeholder_line(names) + ending
+    return "".join(text_lines)
+
+
 def _refuse_unicode_line_ends(path: Path, text: str) -> None:
     """Raise where the lines end in Unicode's NEXT LINE or LINE/PARAGRAPH SEPARATOR (a
     mainframe's EBCDIC newline converted, a word processor's line break; Unicode Standard,
@@ -3693,10 +3720,15 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
                                    rows_after_header, warnings, note_mark)
+    if delimiter == _WHITESPACE:
+        text = _bracketed_unit_names(path, text, rows_before_header, rows_after_header,
+                                     warnings)
     try:
         raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter,
                                                          rows_before_header,
                                                          rows_after_header, warnings)
+        raw.columns = [bracket_names.restored(name) for name in raw.columns]
+        header = [bracket_names.restored(name) for name in header]
     except InputFileError as error:
         named = (unquoted_decimal_commas(str(path), text.splitlines(), rows_before_header,
                                          rows_before_header + rows_after_header + 1)

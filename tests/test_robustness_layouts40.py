@@ -146,3 +146,29 @@ def test_a_record_cut_short_before_a_block_is_no_title(tmp_path):
                               + [rows[100][:14], header, UNITS_LINE] + rows[101:]) + "\n")
     with pytest.raises(InputFileError, match=r"repeats the header line"):
         _read(path, rows_before_header=1, rows_after_header=1)
+
+
+# ------------------------------------------------------- bracketed units holding blanks
+def test_whitespace_names_with_bracketed_units_are_one_name_a_field(tmp_path):
+    """Refused before layouts40 ("every record has 6 fields where the header has 16"):
+    split at the blanks outside the brackets, the header has one name a field."""
+    frame, ends = _records()
+    units = ["", " [umol m-2 s-1]", " [W m-2]", " (deg C)", " [kPa]", " [m s-1]"]
+    names = [name + unit for name, unit in zip(frame.columns, units, strict=True)]
+    body = frame.to_csv(index=False, header=False, sep=" ").splitlines()
+    path = tmp_path / "t.dat"
+    path.write_text("\n".join(["  ".join(names)] + body) + "\n")
+    mapping = {key: names[list(frame.columns).index(column)] for key, column in MAPPING.items()}
+    read, report = read_table(path, columns=mapping, units={"vpd": "kPa"}, site=SITE,
+                              time_column="stamp", time_format="%Y%m%d%H%M",
+                              time_marks="end", delimiter="whitespace")
+    np.testing.assert_array_equal(read["tair"].to_numpy(), frame["t_air"].to_numpy())
+    assert len(read) == len(ends)
+    assert any("'co2 [umol m-2 s-1]'" in w and "outside their bracketed units" in w
+               for w in report.warnings)
+    # a header whose words fit no field count stays refused, naming the mismatch
+    path.write_text("\n".join(["  ".join(names) + " spare [V]"] + body) + "\n")
+    with pytest.raises(InputFileError, match=r"where the header has"):
+        read_table(path, columns=mapping, units={"vpd": "kPa"}, site=SITE,
+                   time_column="stamp", time_format="%Y%m%d%H%M", time_marks="end",
+                   delimiter="whitespace")

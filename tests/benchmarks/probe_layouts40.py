@@ -42,11 +42,30 @@ def case(function):
     return function
 
 
-def edited(folder, edit, ending="\n", encoding="utf-8", name="t.csv", **inputs):
-    """The example's lines as `edit(text, raw)` changes them, read with `inputs`."""
+def edited(folder, edit=lambda text, raw: text, ending="\n", encoding="utf-8", name="t.csv",
+           sep=",", **inputs):
+    """The example's lines (fields split by `sep`) as `edit(text, raw)` changes them, read
+    with `inputs`."""
     raw, _ = table()
-    write(folder / name, edit(lines(raw), raw), ending=ending, encoding=encoding)
+    write(folder / name, edit(lines(raw, sep=sep), raw), ending=ending, encoding=encoding)
     toml(folder, name, **inputs)
+
+
+def every_field_quoted(folder, no_value, name, **inputs):
+    """The example with every field quoted, its -9999 cells written `no_value`, CRLF."""
+    raw, _ = table()
+    raw = raw.replace("-9999", no_value)
+    text = ['"' + '","'.join(row) + '"' for row in [list(raw.columns)] + raw.values.tolist()]
+    write(folder / name, text, ending="\r\n")
+    toml(folder, name, **inputs)
+
+
+def remarked(folder, note, every, at):
+    """The example with a remark column holding `note` on every `every`-th record."""
+    raw, _ = table()
+    raw.insert(8, "remark", np.where(np.arange(len(raw)) % every == at, note, ""))
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv")
 
 
 def renamed_columns(folder, names, sep=",", written="utf-8", extra_lines=(), **inputs):
@@ -227,11 +246,7 @@ def utf8_names_read_as_latin1(folder):
 # --------------------------------------------------------------------------- fields, quotes, ends
 @case
 def quoted_remarks_with_commas_and_doubled_quotes(folder):
-    raw, _ = table()
-    notes = np.where(np.arange(len(raw)) % 211 == 5, '"filter changed, ""zero"" check; ok"', "")
-    raw.insert(8, "remark", notes)
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    remarked(folder, '"filter changed, ""zero"" check; ok"', 211, 5)
 
 
 @case
@@ -244,25 +259,18 @@ def bom_crlf_trailing_comma_every_line_with_units(folder):
 
 @case
 def trailing_tab_every_line(folder):
-    raw, _ = table()
-    write(folder / "t.txt", [line + "\t" for line in lines(raw, sep="\t")])
-    toml(folder, "t.txt", delimiter="\t")
+    edited(folder, lambda text, raw: [line + "\t" for line in text], name="t.txt", sep="\t",
+           delimiter="\t")
 
 
 @case
 def every_field_quoted_with_quoted_nan(folder):
-    raw, _ = table()
-    raw = raw.replace("-9999", "NAN")
-    text = ['"' + '","'.join(row) + '"' for row in [list(raw.columns)] + raw.values.tolist()]
-    write(folder / "t.dat", text, ending="\r\n")
-    toml(folder, "t.dat", missing=["NAN"])
+    every_field_quoted(folder, "NAN", "t.dat", missing=["NAN"])
 
 
 @case
 def old_mac_cr_line_ends(folder):
-    raw, _ = table()
-    write(folder / "t.csv", lines(raw), ending="\r")
-    toml(folder, "t.csv")
+    edited(folder, ending="\r")
 
 
 @case
@@ -303,35 +311,27 @@ def civil_offsets(ends):
     return [s[:-2] + ":" + s[-2:] for s in text]
 
 
-@case
-def iso_stamps_with_summer_offsets(folder):
-    restamped(folder, civil_offsets, "ISO8601")
+def unpadded(form):
+    """Stamps with every field but the minutes unpadded, as `form` orders them."""
+    return lambda ends: [form.format(t=t) for t in ends]
 
 
-@case
-def offsets_without_colon_percent_z(folder):
-    restamped(folder, "%Y-%m-%dT%H:%M:%S+0100", "%Y-%m-%dT%H:%M:%S%z")
-
-
-@case
-def milliseconds_under_a_seconds_format(folder):
-    restamped(folder, "%Y-%m-%d %H:%M:%S.000", "%Y-%m-%d %H:%M:%S")
-
-
-@case
-def unpadded_month_day_hour(folder):
-    restamped(folder, lambda ends: [f"{t.year}-{t.month}-{t.day} {t.hour}:{t.minute:02d}"
-                                    for t in ends], "%Y-%m-%d %H:%M")
-
-
-@case
-def compact_stamps_with_seconds(folder):
-    restamped(folder, "%Y%m%d%H%M%S", "%Y%m%d%H%M%S")
-
-
-@case
-def two_digit_year_day_first(folder):
-    restamped(folder, "%d.%m.%y %H:%M", "%d.%m.%y %H:%M")
+#: stamps written one way (a strftime format or a function of the end stamps) and read
+#: under a format: name -> (written, time_format)
+RESTAMPED = {
+    "iso_stamps_with_summer_offsets": (civil_offsets, "ISO8601"),
+    "offsets_without_colon_percent_z": ("%Y-%m-%dT%H:%M:%S+0100", "%Y-%m-%dT%H:%M:%S%z"),
+    "milliseconds_under_a_seconds_format": ("%Y-%m-%d %H:%M:%S.000", "%Y-%m-%d %H:%M:%S"),
+    "unpadded_month_day_hour": (unpadded("{t.year}-{t.month}-{t.day} {t.hour}:{t.minute:02d}"),
+                                "%Y-%m-%d %H:%M"),
+    "day_first_dots_unpadded": (unpadded("{t.day}.{t.month}.{t.year} {t.hour}:{t.minute:02d}"),
+                                "%d.%m.%Y %H:%M"),
+    "compact_stamps_with_seconds": ("%Y%m%d%H%M%S", "%Y%m%d%H%M%S"),
+    "two_digit_year_day_first": ("%d.%m.%y %H:%M", "%d.%m.%y %H:%M"),
+}
+for _name, (_written, _read) in RESTAMPED.items():
+    CASES[_name] = (lambda written, read: lambda folder: restamped(folder, written, read))(
+        _written, _read)
 
 
 @case
@@ -341,39 +341,35 @@ def date_and_decimal_hour(folder):
         "hour": [f"{h:.1f}" for h in ends.dt.hour + ends.dt.minute / 60]}, "%Y-%m-%d %H")
 
 
-@case
-def date_day_first_and_decimal_hour_24_closing(folder):
+def closing_days(folder, dates, clock, closing, time_format):
+    """Stamps as the date columns `dates` (name -> strftime format) of each interval's
+    start and a time column "clock" written by `clock(ends)`, `closing` at midnight."""
     def cells(ends):
         start = ends - pd.Timedelta("30min")
-        hours = np.where((ends.dt.hour == 0) & (ends.dt.minute == 0), 24.0,
-                         ends.dt.hour + ends.dt.minute / 60)
-        return {"Datum": list(start.dt.strftime("%d.%m.%Y")),
-                "Stunde": [f"{h:.2f}" for h in hours]}
+        midnight = ((ends.dt.hour == 0) & (ends.dt.minute == 0)).to_numpy()
+        return {**{name: list(start.dt.strftime(form)) for name, form in dates.items()},
+                "clock": list(np.where(midnight, closing, clock(ends)))}
 
-    stamp_columns(folder, cells, "%d.%m.%Y %H")
+    stamp_columns(folder, cells, time_format)
+
+
+@case
+def date_day_first_and_decimal_hour_24_closing(folder):
+    closing_days(folder, {"Datum": "%d.%m.%Y"},
+                 lambda ends: [f"{h:.2f}" for h in ends.dt.hour + ends.dt.minute / 60],
+                 "24.00", "%d.%m.%Y %H")
 
 
 @case
 def year_doy_hhmm_2400_closing_each_day(folder):
-    def cells(ends):
-        start = ends - pd.Timedelta("30min")
-        midnight = (ends.dt.hour == 0) & (ends.dt.minute == 0)
-        hhmm = np.where(midnight, "2400", ends.dt.strftime("%H%M"))
-        return {"yr": list(start.dt.strftime("%Y")), "doy": list(start.dt.strftime("%j")),
-                "hhmm": list(hhmm)}
-
-    stamp_columns(folder, cells, "%Y %j %H%M")
+    closing_days(folder, {"yr": "%Y", "doy": "%j"}, lambda ends: ends.dt.strftime("%H%M"),
+                 "2400", "%Y %j %H%M")
 
 
 @case
 def date_and_clock_2400_closing_each_day(folder):
-    def cells(ends):
-        start = ends - pd.Timedelta("30min")
-        midnight = (ends.dt.hour == 0) & (ends.dt.minute == 0)
-        return {"date": list(start.dt.strftime("%d.%m.%Y")),
-                "clock": list(np.where(midnight, "24:00", ends.dt.strftime("%H:%M")))}
-
-    stamp_columns(folder, cells, "%d.%m.%Y %H:%M")
+    closing_days(folder, {"date": "%d.%m.%Y"}, lambda ends: ends.dt.strftime("%H:%M"),
+                 "24:00", "%d.%m.%Y %H:%M")
 
 
 @case
@@ -546,11 +542,7 @@ def firmware_update_adds_a_column(folder):
 # --------------------------------------------------------------------------- more of the same kinds
 @case
 def quoted_remark_holding_a_line_break(folder):
-    raw, _ = table()
-    notes = np.where(np.arange(len(raw)) % 499 == 7, '"visit: analyser cleaned,\nzero checked"', "")
-    raw.insert(8, "remark", notes)
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    remarked(folder, '"visit: analyser cleaned,\nzero checked"', 499, 7)
 
 
 @case
@@ -647,6 +639,56 @@ def flag_column_of_words(folder):
     raw["co2_grade"] = raw["co2_grade"].map({"0": "ok", "1": "check", "2": "bad"})
     write(folder / "t.csv", lines(raw))
     toml(folder, "t.csv", flag_accept=["ok"])
+
+
+def whitespace_bracket_names(folder, form):
+    """A whitespace-delimited file whose names carry their units as `form` writes them."""
+    raw, _ = table()
+    names = [n if u == "-" else form(n, u) for n, u in zip(raw.columns, UNITS, strict=True)]
+    raw.columns = names
+    write(folder / "t.dat", lines(raw, sep="  "))
+    toml(folder, "t.dat", delimiter="whitespace", columns=dict(zip(MAP, names[1:],
+                                                                   strict=True)))
+
+
+@case
+def whitespace_names_with_bracket_units(folder):
+    whitespace_bracket_names(folder, lambda n, u: f"{n}[{u.replace(' ', '')}]")
+
+
+@case
+def whitespace_names_with_bracket_units_holding_blanks(folder):
+    whitespace_bracket_names(folder, lambda n, u: f"{n} [{u}]")
+
+
+@case
+def start_and_end_stamp_columns(folder):
+    raw, ends = table()
+    raw.insert(1, "period_start", stamps(ends - pd.Timedelta("30min"), "%Y-%m-%d %H:%M"))
+    raw.insert(2, "period_end", stamps(ends, "%Y-%m-%d %H:%M"))
+    write(folder / "t.csv", lines(raw.drop(columns="stamp")))
+    toml(folder, "t.csv", time_column="period_end", time_format="%Y-%m-%d %H:%M")
+
+
+@case
+def middle_stamps_declared(folder):
+    raw, ends = table()
+    raw["stamp"] = stamps(ends - pd.Timedelta("15min"), "%Y-%m-%d %H:%M")
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M", time_marks="middle")
+
+
+@case
+def quoted_empty_cells_for_no_value(folder):
+    every_field_quoted(folder, "", "t.csv")
+
+
+@case
+def date_and_integer_hhmm_columns(folder):
+    stamp_columns(folder, lambda ends: {
+        "date": list((ends - pd.Timedelta("30min")).dt.strftime("%Y-%m-%d")),
+        "hhmm": [str(int(v)) if v else "2400" for v in
+                 (ends.dt.hour * 100 + ends.dt.minute)]}, "%Y-%m-%d %H%M")
 
 
 # --------------------------------------------------------------------------- judging
