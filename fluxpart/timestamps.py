@@ -38,6 +38,7 @@ from .stamp_places import (
     repeated_stamp_hint,
     zone_offset,
 )
+from .zero_seconds import zero_tails
 
 __all__ = [
     "INTERVALS_MINUTES",
@@ -1247,9 +1248,11 @@ def _fraction_hint(failed: pd.Series, time_format: str) -> str:
                 "fraction of a day (0.5625 is 13:30), as a spreadsheet saves a time cell "
                 "formatted as a number: format the time column as hh:mm in a copy of the file "
                 "before saving it as CSV, and set time_format to match")
-    return ("the stamps hold decimal fractions (a decimal day of year or hour?), which no "
-            "time_format reads: write the column as dates and times in a copy of the file "
-            "(e.g. 2021-06-01 13:30) and set time_format to match")
+    return ("the stamps hold decimal fractions (a decimal day of year or hour?): a year and "
+            "a decimal day of the year are read under a time_format ending in %j (\"%Y %j\", "
+            "1.0 for 1 January 00:00), a date and a decimal hour under one ending in %H "
+            "(\"%Y-%m-%d %H\"), the decimal field last; else write the column as dates and "
+            "times in a copy of the file (e.g. 2021-06-01 13:30) and set time_format to match")
 
 
 def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, source: str,
@@ -1330,6 +1333,9 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     # refused before as "decimal fractions, which no time_format reads")
     as_written, format_written = text, time_format
     text, time_format, decimal_fields = decimal_stamps(text, time_format)
+    # seconds or milliseconds of zero beyond the format's last field ("13:30:00.000"
+    # under "%H:%M:%S"): read past (layouts40; refused before, naming the format)
+    text, _ = zero_tails(text, time_format)
     if "%p" in time_format and "%H" in time_format and "%I" not in time_format:
         # strptime applies AM/PM to %I only: under %H "01:00 PM" is read as 01:00
         raise TimestampError(

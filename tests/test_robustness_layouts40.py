@@ -22,6 +22,7 @@ from fluxpart.decimal_time import decimal_stamps
 from fluxpart.errors import InputFileError, TimestampError
 from fluxpart.io import read_table
 from fluxpart.timestamps import parse_stamps
+from fluxpart.zero_seconds import zero_tails
 
 
 def _parse(text, time_format, columns=("date", "hour")):
@@ -90,6 +91,22 @@ def test_decimal_fields_leave_other_formats_alone():
                               (["2021 152 13"], "%Y %j %H"),
                               (["2021060113.5"], "%Y%m%d%H")):
         assert decimal_stamps(pd.Series(text), time_format)[1:] == (time_format, 0)
+
+
+@pytest.mark.parametrize("written, time_format", [
+    ("%Y-%m-%d %H:%M:%S.000", "%Y-%m-%d %H:%M:%S"),   # refused before layouts40
+    ("%Y-%m-%d %H:%M:%S", "%Y-%m-%d %H:%M"),          # refused before layouts40
+    ("%d.%m.%Y %H:%M:%S,000", "%d.%m.%Y %H:%M"),      # a decimal comma
+])
+def test_places_of_zero_beyond_the_format_are_read_past(written, time_format):
+    """13:30:00.000 names the minute 13:30 names (ISO 8601-1, lower order components
+    (m)); a second that is not zero stays the reader's to judge."""
+    ends = pd.date_range("2021-06-01 00:30", periods=96, freq="30min")
+    assert list(_parse(list(ends.strftime(written)), time_format, ("stamp",)).stamps) \
+        == list(ends)
+    drifting = pd.Series(list(ends.strftime("%Y-%m-%d %H:%M:%S")))
+    drifting.iloc[5] = drifting.iloc[5][:-2] + "07"
+    assert zero_tails(drifting, "%Y-%m-%d %H:%M") == (drifting, 0)
 
 
 # ------------------------------------------------------- a header block written again

@@ -322,6 +322,8 @@ RESTAMPED = {
     "iso_stamps_with_summer_offsets": (civil_offsets, "ISO8601"),
     "offsets_without_colon_percent_z": ("%Y-%m-%dT%H:%M:%S+0100", "%Y-%m-%dT%H:%M:%S%z"),
     "milliseconds_under_a_seconds_format": ("%Y-%m-%d %H:%M:%S.000", "%Y-%m-%d %H:%M:%S"),
+    "seconds_and_milliseconds_under_a_minute_format": ("%Y-%m-%d %H:%M:%S.000",
+                                                       "%Y-%m-%d %H:%M"),
     "unpadded_month_day_hour": (unpadded("{t.year}-{t.month}-{t.day} {t.hour}:{t.minute:02d}"),
                                 "%Y-%m-%d %H:%M"),
     "day_first_dots_unpadded": (unpadded("{t.day}.{t.month}.{t.year} {t.hour}:{t.minute:02d}"),
