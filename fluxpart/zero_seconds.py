@@ -31,7 +31,7 @@ def zero_tails(text: pd.Series, time_format: str) -> tuple[pd.Series, int]:
     -------
     text : pandas.Series of str
         The stamps without the zero tail; `text` itself where the format ends in
-        neither ``%S`` nor ``%M`` or any stamp lacks such a tail.
+        neither ``%S`` nor ``%M`` or any stamp but a blank one lacks such a tail.
     count : int
         Stamps rewritten (0 where none).
 
@@ -45,6 +45,8 @@ def zero_tails(text: pd.Series, time_format: str) -> tuple[pd.Series, int]:
         return text, 0
     tail, form = _TAILS[ending]
     stripped = text.str.strip()
-    if not stripped.str.fullmatch(form).all():
+    tailed = stripped.str.fullmatch(form).to_numpy(dtype=bool)
+    # blank stamps (a record without one) are the reader's to name, not another form
+    if not tailed.any() or not (tailed | (stripped == "").to_numpy()).all():
         return text, 0
-    return stripped.str.replace(tail, "", regex=True), len(text)
+    return stripped.str.replace(tail, "", regex=True), int(tailed.sum())
