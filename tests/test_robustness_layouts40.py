@@ -12,6 +12,8 @@ invented known truth: the records as written, compared value for value and stamp
 stamp.
 """
 
+import zipfile
+
 import numpy as np
 import pandas as pd
 import pytest
@@ -189,3 +191,25 @@ def test_whitespace_names_with_bracketed_units_are_one_name_a_field(tmp_path):
         read_table(path, columns=mapping, units={"vpd": "kPa"}, site=SITE,
                    time_column="stamp", time_format="%Y%m%d%H%M", time_marks="end",
                    delimiter="whitespace")
+
+
+# ------------------------------------------------------- a portal's zip
+def _zip(path, members):
+    with zipfile.ZipFile(path, "w") as archive:
+        for name, data in members:
+            archive.writestr(name, data)
+
+
+def test_a_zip_of_one_table_and_its_documents_is_the_table(tmp_path):
+    """A portal's download: the table, a read-me and the licence (refused before
+    layouts40 as "a zip archive holding 3 file(s)"); two tables stay refused, named."""
+    frame, ends = _records()
+    table_text = frame.to_csv(index=False)
+    _zip(tmp_path / "t.zip", [("tower.csv", table_text), ("README.txt", "-9999 is missing\n"),
+                              ("LICENSE", "CC BY 4.0\n"), ("doc/site.pdf", "%PDF-1.4\n")])
+    read, _ = _read(tmp_path / "t.zip")
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy())
+    _zip(tmp_path / "two.zip", [("a.csv", table_text), ("b.csv", table_text),
+                                ("README.txt", "two halves\n")])
+    with pytest.raises(InputFileError, match=r"zip archive holding 3 file\(s\)"):
+        _read(tmp_path / "two.zip")

@@ -615,6 +615,16 @@ def zip_of_data_and_readme(folder):
         ("quillmoor_2021.csv", plain_bytes()),
         ("README.txt", b"Quillmoor tower 2 (fictional): half-hourly records, -9999 missing\n")]))
     toml(folder, "t.zip")
+
+
+@case
+def zip_of_two_tables_and_readme(folder):
+    raw, ends = table()
+    cut = (ends > "2021-07-01").to_numpy()
+    (folder / "t.zip").write_bytes(zipped([
+        ("quillmoor_2021a.csv", plain_bytes(raw[~cut])),
+        ("quillmoor_2021b.csv", plain_bytes(raw[cut])), ("README.md", b"# Quillmoor\n")]))
+    toml(folder, "t.zip")
     return "refused"
 
 
