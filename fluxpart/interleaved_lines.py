@@ -218,15 +218,13 @@ def changed_units(lines: list, header_at: int, again_at: int, rows_after_header:
 
     Blanks and quotes around a cell are no difference ("W m-2" is W m-2).
     """
-    def cells(line):
-        return _cells(line, delimiter)
-
-    names = cells(lines[header_at])
+    names = _cells(lines[header_at], delimiter)
     changes = []
     for offset in range(1, rows_after_header + 1):
         if again_at + offset >= len(lines):
             return []
-        first, later = cells(lines[header_at + offset]), cells(lines[again_at + offset])
+        first = _cells(lines[header_at + offset], delimiter)
+        later = _cells(lines[again_at + offset], delimiter)
         if len(first) != len(names) or len(later) != len(names):
             return []
         changes += [(name, a, b) for name, a, b in zip(names, first, later, strict=True)
