@@ -217,6 +217,18 @@ def _user_files(archive) -> list:
             and info.filename.rsplit("/", 1)[-1].lower() not in _DESKTOP_FILES]
 
 
+#: Documents a data portal packs beside a table (a read-me, the licence, how to cite the
+#: data): by name (the stem, any extension) or by a document format's extension.
+_DOCUMENT_STEMS = ("readme", "read_me", "read-me", "license", "licence", "citation")
+_DOCUMENT_EXTENSIONS = (".pdf", ".md", ".html", ".htm", ".rtf", ".doc", ".docx", ".odt")
+
+
+def _document(name: str) -> bool:
+    """True where an archive member's name is a document's, not a table's."""
+    base = name.rsplit("/", 1)[-1].lower()
+    return base.startswith(_DOCUMENT_STEMS) or base.endswith(_DOCUMENT_EXTENSIONS)
+
+
 def single_zip_member(data: bytes) -> bytes | None:
     """The bytes of the one file a zip archive holds, or None where it holds another
     number (macOS's ``__MACOSX/`` forks and desktop files not counted), is a workbook, holds an archive or
@@ -224,7 +236,8 @@ def single_zip_member(data: bytes) -> bytes | None:
 
     A zip of one text table is the table, as a gzip file is (layouts36; refused before
     with "unpack it"); a zip of several files is refused by :func:`refuse_binary`,
-    naming them.
+    naming them. Documents beside one other file (a portal's "README.txt", "LICENSE",
+    a PDF) are no table and are not counted (layouts40).
     """
     import io
     import zipfile
@@ -232,6 +245,9 @@ def single_zip_member(data: bytes) -> bytes | None:
     try:
         with zipfile.ZipFile(io.BytesIO(data)) as archive:
             files = _user_files(archive)
+            tables = [info for info in files if not _document(info.filename)]
+            if len(tables) == 1:
+                files = tables
             if len(files) != 1 or files[0].filename in ("[Content_Types].xml", "mimetype") \
                     or files[0].filename.lower().endswith((".zip", ".7z", ".tar", ".tgz")):
                 return None

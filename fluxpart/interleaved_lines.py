@@ -9,7 +9,11 @@ that cannot take a record for one:
 
 - a repeated header is the header line itself, character for character (blanks around it
   aside), with the title lines above it and the units lines under it each equal to the
-  file's own (as many as ``rows_before_header`` and ``rows_after_header``), and with a
+  file's own (as many as ``rows_before_header`` and ``rows_after_header``; since
+  layouts40 a units line may write its units in another notation, "W/m2" for "W m-2",
+  and a title line may differ where it is no record, a line of another width than the
+  header that opens with no digit: a logger program's new version or signature), and
+  with a
   record (a line of the header's fields) or the header's own block before it, blank and
   note lines aside (the notes judged as below): a header
   after a line of another width (a page number, a title the settings do not count, a
@@ -33,6 +37,8 @@ error values "#N/A", "#VALUE!", "#DIV/0!", "#REF!", "#NAME?", "#NUM!", "#NULL!"
 """
 
 import re
+
+from .variables import same_notation
 
 #: Marks that open a comment line (as ``fluxpart.io``'s refusal names them).
 COMMENT_MARKS = ("#", "//", "/*", "%", "!", ";")
@@ -111,8 +117,11 @@ def repeated_header_blocks(lines: list, rows_before_header: int, rows_after_head
             continue
         first, last = index - rows_before_header, index + rows_after_header
         if (first < first_data or last >= len(lines)
-                or [line.strip() for line in lines[first:index]] != titles
-                or [line.strip() for line in lines[index + 1:last + 1]] != units):
+                or not all(_same_title(own, line, width, delimiter)
+                           for own, line in zip(titles, lines[first:index], strict=True))
+                or not all(_same_units(own, line, delimiter)
+                           for own, line in zip(units, lines[index + 1:last + 1],
+                                                strict=True))):
             return []
         before = first - 1
         marks = tuple(mark for mark in COMMENT_MARKS if not mark.startswith(delimiter))
@@ -166,6 +175,61 @@ def note_lines(lines: list, first_data: int, delimiter: str, width: int, note_ma
     if len(marks_used) != 1 or marks_used & record_marks:
         return [], None
     return notes, marks_used.pop()
+
+
+def _cells(line: str, delimiter: str) -> list:
+    return [cell.strip().strip('"').strip() for cell in _split(line, delimiter)]
+
+
+def _same_title(own: str, line: str, width: int, delimiter: str) -> bool:
+    """A title line of a repeated block: the file's own, or another line that is no
+    record (not of the header's width, not opening with a digit as a stamp does: a
+    record cut short is no title): a program's new version or signature."""
+    opening = line.strip().lstrip('"\'')
+    return line.strip() == own or (bool(opening) and not opening[0].isdigit()
+                                   and field_count(line, delimiter) != width)
+
+
+def _same_units(own: str, line: str, delimiter: str) -> bool:
+    """A units line of a repeated block: the file's own, cell by cell in any notation."""
+    if line.strip() == own:
+        return True
+    mine, theirs = _cells(own, delimiter), _cells(line, delimiter)
+    return len(mine) == len(theirs) and all(same_notation(a, b)
+                                            for a, b in zip(mine, theirs, strict=True))
+
+
+def rewritten_lines(lines: list, block: tuple, rows_before_header: int) -> list:
+    """``(own, again)`` line indices of a repeated block's title and units lines written
+    otherwise than the file's own (another title, units in another notation)."""
+    first, last = block
+    return [(own, again) for own, again in zip(range(last - first + 1),
+                                                range(first, last + 1), strict=True)
+            if own != rows_before_header and lines[own].strip() != lines[again].strip()]
+
+
+def changed_units(lines: list, header_at: int, again_at: int, rows_after_header: int,
+                  delimiter: str) -> list:
+    """``(name, first, later)`` for each column whose cell in the lines under a repeated
+    header (at `again_at`) differs from its cell in the lines under the file's own header
+    (at `header_at`): a units (or processing) line written anew when a logger's program or
+    firmware changed a column's unit. Empty where those lines are equal, or where a line
+    differs in width from the header (no cell stands under one name).
+
+    Blanks and quotes around a cell are no difference ("W m-2" is W m-2).
+    """
+    names = _cells(lines[header_at], delimiter)
+    changes = []
+    for offset in range(1, rows_after_header + 1):
+        if again_at + offset >= len(lines):
+            return []
+        first = _cells(lines[header_at + offset], delimiter)
+        later = _cells(lines[again_at + offset], delimiter)
+        if len(first) != len(names) or len(later) != len(names):
+            return []
+        changes += [(name, a, b) for name, a, b in zip(names, first, later, strict=True)
+                    if not same_notation(a, b)]
+    return changes
 
 
 def ranges(indices: list) -> str:

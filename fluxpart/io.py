@@ -51,6 +51,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from . import (
+    bracket_names,
     digit_grouping,
     flux_rate_labels,
     footers,
@@ -276,7 +277,8 @@ class ReadReport:
         ``utc_offset`` (converted from stamps carrying an offset), ``daylight_saving``
         (moved from civil to standard time), ``time_zone`` (the zone, if any);
         ``rounded_to_minute``, ``date_only`` (midnight written as the date alone),
-        ``whole_numbers`` (fields written "2021.0" read without the point; layouts38) and
+        ``whole_numbers`` (fields written "2021.0" read without the point; layouts38),
+        ``decimal_fields`` (a decimal hour or day of the year read as a clock; layouts40) and
         ``utc_zone`` (stamps of a UTC zone moved to the site's offset) only where they
         happened.
     nonfinite_cells : dict
@@ -2679,7 +2681,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     except pd.errors.ParserError as error:
         if "EOF inside string" not in str(error):
             # a header line of a changed logger program holds more fields than the first
-            _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
+            _refuse_repeated_header(path, text, rows_before_header, rows_after_header,
+                                    delimiter)
             header_line = next(iter(text.splitlines()[rows_before_header:]), "")
             found = re.search(r"Expected (\d+) fields in line (\d+), saw", str(error))
             closed = found and _closed_from(text, int(found.group(2)), int(found.group(1)),
@@ -2732,7 +2735,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     lines = _record_lines(text, first_line, len(raw), delimiter)
     raw = raw.loc[~blank].reset_index(drop=True)
     lines = lines[~blank]
-    _refuse_repeated_header(path, text, rows_before_header, rows_after_header)
+    _refuse_repeated_header(path, text, rows_before_header, rows_after_header, delimiter)
     named = _named_width(header)
     raw, lines = _drop_cut_last_line(path, text, raw, lines, delimiter, warnings, named)
     raw, lines = _drop_cut_last_value(path, text, raw, lines, warnings, named)
@@ -2760,6 +2763,32 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
 #: columns (Excel's specification and limits since Excel 2007 (m)), eddy-covariance
 #: programs' full outputs a few hundred
 _MAX_HEADER_FIELDS = 16384
+
+
+def _bracketed_unit_names(path: Path, text: str, rows_before_header: int,
+                          rows_after_header: int, warnings) -> str:
+    """`text` with a whitespace-delimited header whose bracketed units hold blanks
+    ("co2_net [umol m-2 s-1]") written as one word a name (their blanks as
+    :data:`fluxpart.bracket_names.PLACEHOLDER`, restored once parsed), where only that
+    split gives one name a field of the first record (:mod:`fluxpart.bracket_names`;
+    layouts40: refused before as a header of more names than the records hold)."""
+    text_lines = text.splitlines(keepends=True)
+    at = rows_before_header
+    record = next((line for line in text_lines[at + 1 + rows_after_header:]
+                   if line.strip()), None)
+    if at >= len(text_lines) or record is None:
+        return text
+    names = bracket_names.bracket_names(text_lines[at], record)
+    if names is None:
+        return text
+    if warnings is not None:
+        warnings.append(
+            f"input file {str(path)!r}: the header (line {at + 1}) read as {len(names)} "
+            "names split at the blanks outside their bracketed units (" + ", ".join(
+                repr(name) for name in names if " " in name)[:160] + "), one a field")
+    ending = text_lines[at][len(text_lines[at].rstrip("\r\n")):]
+    text_lines[at] = bracket_names.placeholder_line(names) + ending
+    return "".join(text_lines)
 
 
 def _refuse_unicode_line_ends(path: Path, text: str) -> None:
@@ -2810,7 +2839,7 @@ def _refuse_wide_header(path: Path, text: str, delimiter: str, rows_before_heade
 
 
 def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
-                            rows_after_header: int) -> None:
+                            rows_after_header: int, delimiter: str = ",") -> None:
     """Raise where the header line repeats among the records: a logger restarted its
     program and wrote its title, header and units lines again, or files were joined end
     to end. Named before the lines around it (a title of one field reads as a record
@@ -2845,6 +2874,21 @@ def _refuse_repeated_header(path: Path, text: str, rows_before_header: int,
             "or a logger writing its header every day?): in a copy of the file, keep the "
             "first header and "
             f"remove the repeated ones{around} and any page lines between the records")
+    changed = interleaved_lines.changed_units(text_lines, rows_before_header, again,
+                                              rows_after_header, delimiter)
+    if changed:
+        # the lines under it name other units (a firmware update changed a column's
+        # unit): removing the repeated block, as for a restart, would read the values
+        # after it in the first unit (layouts40)
+        shown = "; ".join(f"{name!r}: {a!r} under the header of line "
+                          f"{rows_before_header + 1}, {b!r} under line {again + 1}"
+                          for name, a, b in changed[:4])
+        raise InputFileError(
+            f"input file {str(path)!r}: line {again + 1} repeats the header line with other "
+            f"lines under it ({shown}; a logger program or firmware changed a unit?): the "
+            "records after it are written in the later unit; split the file there and "
+            "list the parts in [input] path (the unit each part writes is then checked "
+            "against [input.units]), or convert those records in a copy of the file")
     raise InputFileError(
         f"input file {str(path)!r}: line {again + 1} repeats the header line (a logger "
         "program restarted, or files joined end to end?): in a copy of the file, remove it"
@@ -3110,9 +3154,19 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
     if blocks:
         what = ("header line" if not rows_before_header + rows_after_header
                 else "header line with its title and units lines")
+        otherwise = [pair for block in blocks for pair in
+                     interleaved_lines.rewritten_lines(lines, block, rows_before_header)]
+        same = "the same characters (a logger program restarted?)"
+        if otherwise:
+            # a title naming the program's new version, units in another notation
+            # (layouts40): named, so that the user sees what else the block says
+            same = ("a logger program restarted or updated: " + "; ".join(
+                f"{'title' if own < rows_before_header else 'units'} line {own + 1} "
+                f"{lines[own].strip()[:80]!r} written {lines[again].strip()[:80]!r} on "
+                f"line {again + 1}" for own, again in otherwise[:3]))
         warnings.append(
             f"input file {str(path)!r}: the {what} written again {len(blocks)} time(s) "
-            "among the records, the same characters (a logger program restarted?), on "
+            f"among the records, {same}, on "
             f"{_lines_word(skipped)} {interleaved_lines.ranges(sorted(skipped))}: skipped")
     kept = [("" if index in skipped else line) for index, line in enumerate(lines)]
     width = (interleaved_lines.field_count(lines[rows_before_header], delimiter)
@@ -3666,10 +3720,15 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
                                    rows_after_header, warnings, note_mark)
+    if delimiter == _WHITESPACE:
+        text = _bracketed_unit_names(path, text, rows_before_header, rows_after_header,
+                                     warnings)
     try:
         raw, lines, header, unnamed_surplus = _read_text(path, text, delimiter,
                                                          rows_before_header,
                                                          rows_after_header, warnings)
+        raw.columns = [bracket_names.restored(name) for name in raw.columns]
+        header = [bracket_names.restored(name) for name in header]
     except InputFileError as error:
         named = (unquoted_decimal_commas(str(path), text.splitlines(), rows_before_header,
                                          rows_before_header + rows_after_header + 1)
@@ -3840,7 +3899,9 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                            if parsed.rounded_to_minute else {}),
                         **({"date_only": parsed.date_only} if parsed.date_only else {}),
                         **({"whole_numbers": parsed.whole_numbers}
-                           if parsed.whole_numbers else {})},
+                           if parsed.whole_numbers else {}),
+                        **({"decimal_fields": parsed.decimal_fields}
+                           if parsed.decimal_fields else {})},
     }
 
 
@@ -5314,6 +5375,9 @@ def _conversion_text(conversions: dict) -> str:
     if conversions.get("whole_numbers"):
         parts.append(f"{conversions['whole_numbers']} stamp(s) with whole numbers written "
                      "with a decimal point (2021.0) read without it")
+    if conversions.get("decimal_fields"):
+        parts.append(f"{conversions['decimal_fields']} stamp(s) with a decimal hour or day of "
+                     "the year read as the clock it states")
     if conversions.get("utc_zone"):
         parts.append(f"{conversions['utc_zone']} stamp(s) in {conversions.get('time_zone')} "
                      "moved to local standard time")

@@ -23,6 +23,7 @@ import pandas as pd
 
 from .config import setting_text
 from .counted_time import counted_form, counted_stamps, counts, day_system_mismatch, unit_mismatch
+from .decimal_time import decimal_stamps
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -37,6 +38,7 @@ from .stamp_places import (
     repeated_stamp_hint,
     zone_offset,
 )
+from .zero_seconds import zero_tails
 
 __all__ = [
     "INTERVALS_MINUTES",
@@ -164,6 +166,9 @@ class ParsedStamps:
     whole_numbers : int
         Stamps whose numeric fields were written as whole numbers with a decimal point
         ("2021.0 1.0 30.0" for year, day of year and hhmm) and read without it.
+    decimal_fields : int
+        Stamps whose last field is a decimal hour or day of the year ("14.5" under a
+        format ending %H, "64.60417" under %j), read as the clock it states.
     """
 
     stamps: pd.DatetimeIndex
@@ -174,6 +179,7 @@ class ParsedStamps:
     rounded_to_minute: int = 0
     date_only: int = 0
     whole_numbers: int = 0
+    decimal_fields: int = 0
 
 
 def join_time_columns(raw: pd.DataFrame, time_columns: tuple) -> pd.Series:
@@ -1242,9 +1248,11 @@ def _fraction_hint(failed: pd.Series, time_format: str) -> str:
                 "fraction of a day (0.5625 is 13:30), as a spreadsheet saves a time cell "
                 "formatted as a number: format the time column as hh:mm in a copy of the file "
                 "before saving it as CSV, and set time_format to match")
-    return ("the stamps hold decimal fractions (a decimal day of year or hour?), which no "
-            "time_format reads: write the column as dates and times in a copy of the file "
-            "(e.g. 2021-06-01 13:30) and set time_format to match")
+    return ("the stamps hold decimal fractions (a decimal day of year or hour?): a year and "
+            "a decimal day of the year are read under a time_format ending in %j (\"%Y %j\", "
+            "1.0 for 1 January 00:00), a date and a decimal hour under one ending in %H "
+            "(\"%Y-%m-%d %H\"), the decimal field last; else write the column as dates and "
+            "times in a copy of the file (e.g. 2021-06-01 13:30) and set time_format to match")
 
 
 def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, source: str,
@@ -1326,6 +1334,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                 f"{int(no_count.sum())} such stamp(s): give every record its count, or "
                 "delete such lines in a copy of the file")
     text, whole_numbers = _whole_number_fields(text, time_format)
+    # a decimal hour beside a date, or a year and a decimal day of the year (layouts40;
+    # refused before as "decimal fractions, which no time_format reads")
+    as_written, format_written = text, time_format
+    text, time_format, decimal_fields = decimal_stamps(text, time_format)
+    # seconds or milliseconds of zero beyond the format's last field ("13:30:00.000"
+    # under "%H:%M:%S"): read past (layouts40; refused before, naming the format)
+    text, _ = zero_tails(text, time_format)
     if "%p" in time_format and "%H" in time_format and "%I" not in time_format:
         # strptime applies AM/PM to %I only: under %H "01:00 PM" is read as 01:00
         raise TimestampError(
@@ -1515,9 +1530,14 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = "; " + found
         hint = _mixed_forms(hint, text, failed, failed | is_24 | date_only, time_format,
                             source, lines)
+        stamp = f"{text.iloc[first]!r}, which does not match"
+        if decimal_fields:
+            # named as written, and as read from its decimal field
+            stamp = (f"{as_written.iloc[first]!r}, which read as {text.iloc[first]!r} "
+                     f"(its decimal field as a clock) does not match")
         raise TimestampError(
             f"{_time_setting(time_columns)}: {_where(source, lines, first)} has stamp "
-            f"{text.iloc[first]!r}, which does not match time_format = {setting_text(time_format)}; "
+            f"{stamp} time_format = {setting_text(format_written)}; "
             f"{int(failed.sum())} stamp(s) fail to parse{hint}")
     dropped = _minutes_of_one_digit(text, time_format)
     if dropped:
@@ -1551,7 +1571,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                         offset_converted=offset_converted, daylight_saving=daylight,
                         utc_zone=from_utc,
                         rounded_to_minute=rounded, date_only=int(date_only.sum()),
-                        whole_numbers=whole_numbers)
+                        whole_numbers=whole_numbers, decimal_fields=decimal_fields)
 
 
 #: Years of the Buddhist Era as the Thai solar calendar counts them: the Gregorian year

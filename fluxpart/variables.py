@@ -233,6 +233,19 @@ def _notation(unit: str) -> str:
     return " ".join(text.split())
 
 
+def same_notation(unit: str, other: str) -> bool:
+    """True where `unit` and `other` write one unit in two notations or look-alike
+    characters ("umol/m2/s" and "umol m-2 s-1", "W/m^2" and "W m-2", "deg C" and "°C"),
+    whatever variable they belong to; text equal as written is one unit too.
+
+    Examples
+    --------
+    >>> same_notation("umol/m2/s", "umol m-2 s-1"), same_notation("W m-2", "kW m-2")
+    (True, False)
+    """
+    return unit == other or _notation(_folded(unit)) == _notation(_folded(other))
+
+
 def unit_spelling(name: str, unit: str) -> str:
     """The accepted spelling of `unit` for variable `name`, where they differ only in
     look-alike characters or notation; else `unit` unchanged.

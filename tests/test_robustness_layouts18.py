@@ -261,7 +261,11 @@ def test_stamps_that_change_their_form_midfile_are_named_as_two_forms(later, pro
             f"'{truth[300].strftime(later)}' from line 302), and time_format = {proposed} "
             "would read only the second")):
         _parse(text, "%Y-%m-%d %H:%M")
-    # every stamp in the second form: the proposed format, as before
+    # every stamp in the second form: the proposed format, as before; seconds that are
+    # all zero are read as the minute they name since layouts40 (ISO 8601-1 (m))
+    if later.endswith("%S"):
+        assert list(_parse(list(truth.strftime(later)), "%Y-%m-%d %H:%M")) == list(truth)
+        return
     with pytest.raises(TimestampError, match=re.escape(f"time_format = {proposed}")):
         _parse(list(truth.strftime(later)), "%Y-%m-%d %H:%M")
 

@@ -142,17 +142,19 @@ def test_time_as_a_fraction_of_a_day_is_named(tmp_path):
     assert "0.020833" in str(caught.value)
 
 
-def test_decimal_hours_keep_their_line(tmp_path):
-    """Decimal hours (0.0 .. 23.5) are no fractions of a day: the earlier line stays
-    (kept behaviour)."""
+def test_decimal_hours_are_no_fraction_of_a_day(tmp_path):
+    """Decimal hours (0.0 .. 23.5) are no fractions of a day: under a format ending in
+    %H they are read as their clock (layouts40; refused before as "decimal fractions"),
+    and the day-fraction hint stays away. Outside fact: 0.5 h is 30 minutes."""
     ends, values = _records()
     path = tmp_path / "hours.csv"
-    _two_columns(path, [f"{e:%Y-%m-%d}" for e in ends],
-                 [f"{e.hour + e.minute / 60:.1f}" for e in ends], values)
-    with pytest.raises(TimestampError) as caught:
-        _read(path, time_column=["Date", "Time"], time_format="%Y-%m-%d %H")
-    assert "fraction of a day" not in str(caught.value)
-    assert "decimal fractions" in str(caught.value)
+    starts = ends - pd.Timedelta("30min")
+    _two_columns(path, [f"{e:%Y-%m-%d}" for e in starts],
+                 [f"{e.hour + e.minute / 60:.1f}" for e in starts], values)
+    frame, report = _read(path, time_column=["Date", "Time"], time_format="%Y-%m-%d %H",
+                          time_marks="start")
+    assert list(frame.index) == list(starts)
+    assert report.stamp_conversions["decimal_fields"] == len(ends)
 
 
 @pytest.mark.parametrize("note", ["sep=;", "SEP=;", '"sep=;";;;;;'])

@@ -354,8 +354,9 @@ def test_stamps_with_decimal_fractions_are_named_for_what_they_are():
     """Year, day and hhmm saved from a table of floats ('2021.0 1.0 30.0') are read as the
     whole numbers they are (refused before layouts38, "whole numbers written with a decimal
     fraction"); a decimal day of year ('2021 1.02083' = 00:30 of 1 January, 30/1440 of a
-    day) is refused with what it is, judged on every failing stamp (the first decimal day,
-    1.00000, is whole). Outside fact: the calendar of Python's ``datetime``."""
+    day) is read under a format ending in %j since layouts40, and refused with what it is
+    under another, judged on every failing stamp (the first decimal day, 1.00000, is
+    whole). Outside fact: the calendar of Python's ``datetime``."""
     starts = [datetime(2021, 1, 1) + timedelta(minutes=30 * k) for k in range(96)]
     floats = [f"{float(t.year)} {float(t.timetuple().tm_yday)} {float(t.hour * 100 + t.minute)}"
               for t in starts]
@@ -363,8 +364,10 @@ def test_stamps_with_decimal_fractions_are_named_for_what_they_are():
     decimal_days = [f"{t.year} {t.timetuple().tm_yday + (t.hour * 60 + t.minute) / 1440:.5f}"
                     for t in starts]
     assert decimal_days[1] == "2021 1.02083"
+    assert list(_parse(decimal_days, "%Y %j", columns=("Year", "DOY"))) == starts
+    day_first = [" ".join(stamp.split()[::-1]) for stamp in decimal_days]
     with pytest.raises(TimestampError, match=r"stamps hold decimal fractions \(a decimal day"):
-        _parse(decimal_days, "%Y %j", columns=("Year", "DOY"))
+        _parse(day_first, "%j %Y", columns=("DOY", "Year"))
 
 
 def test_stamps_saved_in_scientific_notation_are_named():
