@@ -999,13 +999,16 @@ def _library_not_loaded(error: ImportError | SystemError) -> str | None:
 
 
 def _address_space_limited() -> bool:
-    """Whether this process runs under a limit on its address space (``ulimit -v``).
+    """Whether this process runs under a limit on its address space or its data segment
+    (``ulimit -v``, ``ulimit -d``: since Linux 4.7 the latter counts every private writable
+    mapping, setrlimit(2) (m)).
 
     :mod:`resource` is imported with this module: a compiled module itself, it cannot be
     loaded once the limit is reached."""
     if _resource is None:       # not POSIX
         return False
-    return _resource.getrlimit(_resource.RLIMIT_AS)[0] != _resource.RLIM_INFINITY
+    return any(_resource.getrlimit(which)[0] != _resource.RLIM_INFINITY
+               for which in (_resource.RLIMIT_AS, _resource.RLIMIT_DATA))
 
 
 def main(argv=None) -> int:
@@ -1084,7 +1087,7 @@ def main(argv=None) -> int:
         # a memory limit (ulimit -v, a container's or a batch job's) reached inside NumPy or
         # pandas: a traceback ending in _ArrayMemoryError; the write stages are undone on
         # any exception (resultdir.swapped_in), so the folder is as it was
-        print(f"error: ran out of memory (a memory limit of this process: ulimit -v, a "
+        print(f"error: ran out of memory (a memory limit of this process: ulimit -v or -d, a "
               f"container's or a batch job's); "
               f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
               "memory", file=sys.stderr)
@@ -1097,7 +1100,7 @@ def main(argv=None) -> int:
         # load: a 15-line traceback, exit 1 (ulimit -v 150 to 300 MB in run and verify,
         # faults36)
         print(f"error: ran out of memory loading a library ({words}; a memory limit of "
-              "this process: ulimit -v, a container's or a batch job's); "
+              "this process: ulimit -v or -d, a container's or a batch job's); "
               f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
               "memory", file=sys.stderr)
         if argv is None:
@@ -1133,7 +1136,7 @@ def main(argv=None) -> int:
             # the system refused memory to a system call (importlib listing a package
             # folder under ulimit -v 600 MB in `export`: a 35-line traceback, exit 1)
             print(f"error: ran out of memory ({error.strerror}; a memory limit of this "
-                  "process: ulimit -v, a container's or a batch job's); "
+                  "process: ulimit -v or -d, a container's or a batch job's); "
                   f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
                   "memory", file=sys.stderr)
             return 2

@@ -201,8 +201,10 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
                               "never makes and never follows; remove the link (its target "
                               "is untouched) and run again") from None
         remedy = (full_disk_remedy(path.parent) if error.errno == errno.ENOSPC
+                  else _NO_LOCKS_REMEDY if error.errno == errno.ENOLCK
                   else "choose a writable output folder")
-        raise OutputError(f"cannot create the lock file {str(path)!r} beside the output folder: "
+        verb = "lock" if error.errno == errno.ENOLCK else "create"
+        raise OutputError(f"cannot {verb} the lock file {str(path)!r} beside the output folder: "
                           f"{error.strerror or error}; {remedy}") from None
     try:
         yield path
@@ -213,6 +215,15 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
             with _suppress_os_error():
                 path.unlink()
         lock.release()
+
+
+#: What to do where the file system gives no locks (ENOLCK, "No locks available": an NFS
+#: mount whose lock service is not running or that was mounted ``nolock``, flock(2) and
+#: nfs(5) (m)); "choose a writable output folder" sent the user after a permission that
+#: was never missing (faults38)
+_NO_LOCKS_REMEDY = ("the file system there gives no file locks (an NFS mount without its "
+                    "lock service, or mounted with nolock); start its lock service, mount it "
+                    "with local_lock=flock, or write the result to a local disk and copy it")
 
 
 def _acquire(lock, directory, path: Path, timeout: float, notify) -> None:

@@ -1,0 +1,62 @@
+"""Faults found by round faults38 (invented data only).
+
+Each test fails on the code before the fix it names.
+"""
+from __future__ import annotations
+
+import errno
+import subprocess
+import sys
+
+import pytest
+
+from fluxpart.errors import OutputError
+
+
+def test_a_data_segment_limit_counts_as_a_memory_limit():
+    """``ulimit -d`` (RLIMIT_DATA) counts every private writable mapping since Linux 4.7
+    (setrlimit(2) (m)), OpenBLAS's 32 MiB work buffers among them. Only ``ulimit -v`` was
+    asked, so under ``ulimit -d`` 100 MB `run` hung in OpenBLAS's allocator (SIGTERM
+    cannot reach a C loop), 60 MB ended with OpenBLAS's own message and exit 1, 130 MB
+    crashed (exit 139). Now the room under either limit is asked before OpenBLAS takes
+    its buffers, and its lack is the one line about memory (exit 2)."""
+    if not sys.platform.startswith("linux"):
+        pytest.skip("RLIMIT_DATA of private mappings is Linux's (4.7 and later)")
+    probe = (
+        "import resource\n"
+        "resource.setrlimit(resource.RLIMIT_DATA, (90 << 20, resource.RLIM_INFINITY))\n"
+        "from fluxpart import cli, fingerprint\n"
+        "room = fingerprint._address_headroom()\n"
+        "assert room is not None and 0 < room < 90 << 20, room\n"
+        "assert cli._address_space_limited()\n"
+        "try:\n"
+        "    fingerprint.require_address_space(room + 1, 'for a test')\n"
+        "except MemoryError as error:\n"
+        "    assert 'ulimit -v or -d' in str(error), error\n"
+        "else:\n"
+        "    raise SystemExit('no MemoryError')\n"
+        "fingerprint.require_address_space(room // 2, 'for a test')\n")
+    done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
+                          timeout=60)
+    assert done.returncode == 0, done.stderr[-800:]
+
+
+def test_a_file_system_without_locks_is_named_as_such(tmp_path, monkeypatch):
+    """An NFS mount whose lock service is down (or mounted ``nolock``) answers flock(2)
+    with ENOLCK, "No locks available" (nfs(5) (m)). `run` said "cannot create the lock
+    file ...: No locks available; choose a writable output folder" of a writable folder.
+    Now the lock is named, with what to do about the mount."""
+    import fcntl
+
+    from fluxpart.resultdir import folder_lock
+
+    def no_locks(fd, operation):
+        raise OSError(errno.ENOLCK, "No locks available")
+
+    monkeypatch.setattr(fcntl, "flock", no_locks)
+    with pytest.raises(OutputError) as refused:
+        with folder_lock(tmp_path / "out"):
+            pass
+    said = str(refused.value)
+    assert "cannot lock the lock file" in said and "gives no file locks" in said
+    assert "choose a writable output folder" not in said
