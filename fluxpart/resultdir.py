@@ -84,7 +84,7 @@ from .store import (
 )
 
 __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_leftovers",
-           "folder_identity", "folder_lock", "interrupted_writes", "lock_file", "make_staging",
+           "dangling_link_above", "folder_identity", "folder_lock", "interrupted_writes", "lock_file", "make_staging",
            "read_folder",
            "recover_missing",
            "replace_refusal", "swapped_in", "write_folder"]
@@ -483,6 +483,37 @@ def other_site_reason(directory, site_name) -> str | None:
 _A_FILE = "exists and is not a folder (an existing file)"
 
 
+def dangling_link_above(path) -> str | None:
+    """Why no folder can be made for `path`: a folder above it is a symbolic link that
+    leads nowhere (its target moved, deleted or not mounted); None where there is none.
+
+    Parameters
+    ----------
+    path : path-like
+        A folder or file to be written (itself a link or not: a writer writes at a link's
+        target).
+
+    Returns
+    -------
+    str or None
+        The reason, to follow the path's name in a message.
+
+    Notes
+    -----
+    ``Path.exists`` follows links, so the folder looked missing and ``mkdir(parents=True)``
+    then met the link: `run` ended in a FileExistsError traceback after its whole
+    computation, and `report`, `export --csv` and `--netcdf` blamed "File exists" or a
+    file (faults38).
+    """
+    for above in Path(path).absolute().parents:
+        if above.exists():
+            return None
+        if above.is_symlink():
+            return (f"lies below {str(above)!r}, a symbolic link to {os.readlink(above)!r}, "
+                    "which does not exist (create or mount what it leads to)")
+    return None
+
+
 def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
                     kind: str = "a fluxpart result folder") -> str | None:
     """Why the folder `directory` must not be replaced whole, or None when it may be.
@@ -513,7 +544,7 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     if too_long:
         return too_long
     if not directory.exists():
-        return None
+        return dangling_link_above(directory)
     if not directory.is_dir():
         return _A_FILE
     if os.path.ismount(directory):

@@ -10,6 +10,7 @@ import sys
 
 import pytest
 
+from fluxpart.cli import main
 from fluxpart.errors import OutputError
 
 
@@ -60,3 +61,24 @@ def test_a_file_system_without_locks_is_named_as_such(tmp_path, monkeypatch):
     said = str(refused.value)
     assert "cannot lock the lock file" in said and "gives no file locks" in said
     assert "choose a writable output folder" not in said
+
+
+def test_a_dangling_link_above_an_output_is_named(copy, capsys):
+    """An output below a symbolic link whose target is gone (moved, or a share not
+    mounted): `run` computed the whole result, then ended in a FileExistsError traceback
+    from ``mkdir(parents=True)`` (``Path.exists`` follows the link, so the folder looked
+    missing); `report --out` said "cannot be written (File exists)", `export --csv` that
+    the link "is a file", `--netcdf` "cannot write in ... (File exists)". Now each is one
+    line naming the link and where it leads, before any work."""
+    link = copy / "shares"
+    link.symlink_to(copy / "unmounted")
+    commands = (["run", str(copy / "site.toml"), "--out", str(link / "out"), "--quiet"],
+                ["report", "--quiet", str(copy / "out"), "--out", str(link / "rep")],
+                ["export", "--csv", str(link / "csv"), str(copy / "out")],
+                ["export", "--netcdf", str(link / "a" / "x.nc"), str(copy / "out")])
+    for args in commands:
+        assert main(args) == 2
+        said = capsys.readouterr().err.strip().splitlines()
+        assert len(said) == 1 and "a symbolic link to" in said[0], said
+        assert repr(str(copy / "unmounted")) in said[0] and "File exists" not in said[0]
+    assert not (copy / "unmounted").exists() and link.is_symlink()
