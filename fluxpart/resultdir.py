@@ -78,6 +78,7 @@ from .store import (
     read_table,
     require_owner_access,
     set_mode,
+    special_kind,
     table_shape,
     unreadable,
     write_table,
@@ -546,7 +547,9 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     if not directory.exists():
         return dangling_link_above(directory)
     if not directory.is_dir():
-        return _A_FILE
+        # a device node or a named pipe was called "an existing file" (faults38)
+        kind = special_kind(directory)
+        return f"exists and is not a folder ({kind})" if kind else _A_FILE
     if os.path.ismount(directory):
         return _MOUNT_POINT.format(inside=str(directory / "result"))
     try:

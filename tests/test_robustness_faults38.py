@@ -82,3 +82,18 @@ def test_a_dangling_link_above_an_output_is_named(copy, capsys):
         assert len(said) == 1 and "a symbolic link to" in said[0], said
         assert repr(str(copy / "unmounted")) in said[0] and "File exists" not in said[0]
     assert not (copy / "unmounted").exists() and link.is_symlink()
+
+
+def test_a_pipe_or_device_as_output_is_named_by_its_kind(tmp_path):
+    """A named pipe or a device node given as the output folder was refused as "exists
+    and is not a folder (an existing file)"; now its kind is named (inode(7): S_ISFIFO,
+    S_ISCHR (m)); a plain file is still "an existing file"."""
+    import os
+
+    from fluxpart.resultdir import replace_refusal
+
+    os.mkfifo(tmp_path / "pipe")
+    (tmp_path / "plain").write_text("notes\n")
+    assert replace_refusal(tmp_path / "pipe") == "exists and is not a folder (a named pipe)"
+    assert replace_refusal(tmp_path / "plain") == "exists and is not a folder (an existing file)"
+    assert replace_refusal("/dev/null") == "exists and is not a folder (a device)"

@@ -1327,8 +1327,9 @@ def f_input_unmounted_lazily():
 def _same_report(folder, base):
     """The report page (its folder name aside) and figures of `folder` equal `base`'s."""
     def files(f):
-        return {q.name: q.read_bytes().replace(Path(f).name.encode(), b"F")
-                for q in sorted((Path(f) / "report").iterdir())}
+        return {q.name: q.read_bytes().replace(
+            b"<code>" + Path(f).name.encode() + b"<", b"<code>F<") if q.suffix == ".html"
+                else q.read_bytes() for q in sorted((Path(f) / "report").iterdir())}
     return (Path(folder) / "report").is_dir() and files(folder) == files(base)
 
 
@@ -1474,7 +1475,7 @@ def f_report_locale_tz():
                          ("TZ=Etc/GMT+12", dict(TZ="Etc/GMT+12"))):
         env = dict(ENV, **extra)
         env.pop("LC_ALL", None)
-        folder = fresh("rl")
+        folder = fresh("rep_loc")
         csv = W / "rl_csv"
         shutil.rmtree(csv, ignore_errors=True)
         rep = fp("report", "--quiet", folder, env=env)
