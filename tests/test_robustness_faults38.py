@@ -97,3 +97,24 @@ def test_a_pipe_or_device_as_output_is_named_by_its_kind(tmp_path):
     assert replace_refusal(tmp_path / "pipe") == "exists and is not a folder (a named pipe)"
     assert replace_refusal(tmp_path / "plain") == "exists and is not a folder (an existing file)"
     assert replace_refusal("/dev/null") == "exists and is not a folder (a device)"
+
+
+def test_absolute_paths_work_from_a_deleted_current_folder(tmp_path, monkeypatch):
+    """A shell left in a folder another run replaced: `run` and `verify` of absolute
+    paths said "the current folder no longer exists ..., give absolute paths". The
+    warnings' stack level resolved every frame's file name, ``<frozen runpy>`` of
+    ``python -m`` too, and resolving a relative name asks for the current folder
+    (``os.getcwd``: ENOENT, getcwd(3) (m)). Names that are not absolute are now no file
+    of the package; the level is the same."""
+    from fluxpart.errors import caller_stacklevel
+
+    code = compile("level = caller_stacklevel()", "<frozen runpy>", "exec")
+    here = {"caller_stacklevel": caller_stacklevel}
+    exec(code, here)
+    gone = tmp_path / "gone"
+    gone.mkdir()
+    monkeypatch.chdir(gone)
+    gone.rmdir()
+    found = {"caller_stacklevel": caller_stacklevel}
+    exec(code, found)
+    assert found["level"] == here["level"] == 1

@@ -1636,7 +1636,8 @@ def f_input_replaced_after_check():
     (bundle / "tower.csv").write_text("".join(lines))
     done = fp("run", "site.toml", "--out", out, "--quiet", cwd=bundle)
     import json
-    recorded = json.loads((out / "manifest.json").read_text())["input"] if out.exists() else {}
+    recorded = json.loads((out / "manifest.json").read_text())["provenance"]["input"] \
+        if out.exists() else {}
     digest = hashlib.sha256((bundle / "tower.csv").read_bytes()).hexdigest()
     record("the input edited between check and run", first.returncode in (0, 1)
            and done.returncode == 0 and digest in json.dumps(recorded)
@@ -1855,6 +1856,55 @@ def f_no_locks():
            f" ({os.strerror(errno.ENOLCK)})")
 
 
+def f_blas_kernel():
+    """OpenBLAS forced to another CPU kernel (``OPENBLAS_CORETYPE=Prescott``) and NumPy's
+    SIMD dispatch cut back (``NPY_DISABLE_CPU_FEATURES``): run, then verify under the
+    machine's own settings: bit-identical, or within rounding with the platform named."""
+    for label, extra in (("OPENBLAS_CORETYPE=Prescott", dict(OPENBLAS_CORETYPE="Prescott")),
+                         ("NPY_DISABLE_CPU_FEATURES=AVX2 FMA3 AVX512F ...",
+                          dict(NPY_DISABLE_CPU_FEATURES="AVX512F AVX512CD AVX512_SKX AVX2 "
+                                                        "FMA3 F16C"))):
+        out = W / "kern"
+        shutil.rmtree(out, ignore_errors=True)
+        done = fp("run", "site.toml", "--out", out, "--quiet", env=dict(ENV, **extra))
+        checked = fp("verify", out)
+        first = checked.stdout.splitlines()[0] if checked.stdout else ""
+        same = table_digests(out) == table_digests(W / "r0")
+        record(f"run under {label}, verified under the machine's defaults", done.returncode
+               == 0 and checked.returncode == 0 and (same or "platform differs" in first),
+               f"run {done.returncode}, identical {same}, verify {checked.returncode} "
+               f"{first[:110]!r}")
+
+
+def f_batch_scratch():
+    """A Dask batch whose ``TMPDIR`` (where Dask's workers keep their scratch space) is a
+    full 64 kB tmpfs, and one with ``HOME`` missing (Dask's configuration folder):
+    completes, or one line; every site written verifies."""
+    full = W / "btmp"
+    full.mkdir(exist_ok=True)
+    mounted = _mounted(full, "-t", "tmpfs", "-o", "size=64k", "tmpfs")
+    if mounted:
+        (full / "filler").write_bytes(b"\0" * (60 << 10))
+    try:
+        for label, extra in (("TMPDIR a full tmpfs", dict(TMPDIR=str(full))),
+                             ("HOME missing", dict(HOME="/nonexistent",
+                                                   XDG_CONFIG_HOME="/nonexistent/c"))):
+            if "TMPDIR" in extra and not mounted:
+                record(f"a Dask batch with {label}", False, "mount refused: not probed")
+                continue
+            make_net()
+            done = fp("batch", "sites.toml", "--quiet", "--workers", "2", cwd=NET,
+                      env=dict(ENV, **extra), timeout=600)
+            codes = sites_verify(NET / "out") if (NET / "out").exists() else []
+            record(f"a Dask batch with {label}", ((done.returncode == 0 and codes == [0] * 4)
+                   or one_line(done)) and all(c == 0 for c in codes)
+                   and "Traceback" not in done.stderr,
+                   f"exit {done.returncode}, {_stderr_tail(done, 160)}, verify {codes}")
+    finally:
+        if mounted:
+            subprocess.run(["umount", str(full)])
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -1879,7 +1929,8 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_report_locale_tz, f_matplotlib_config, f_tmpdir_odd, f_umasks, f_long_paths,
           f_logger_appending, f_input_replaced_after_check, f_clock_far, f_cpu_limit,
           f_open_files_readers, f_data_limit, f_signal_dispositions, f_sigquit,
-          f_verify_saved_inside, f_deleted_cwd, f_two_csv_exports, f_no_locks]
+          f_verify_saved_inside, f_deleted_cwd, f_two_csv_exports, f_no_locks,
+          f_blas_kernel, f_batch_scratch]
 
 if __name__ == "__main__":
     wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
