@@ -118,3 +118,20 @@ def test_absolute_paths_work_from_a_deleted_current_folder(tmp_path, monkeypatch
     found = {"caller_stacklevel": caller_stacklevel}
     exec(code, found)
     assert found["level"] == here["level"] == 1
+
+
+def test_a_relative_config_in_a_deleted_folder_names_the_folder(tmp_path, monkeypatch,
+                                                                capsys):
+    """From a deleted current folder `run site.toml` said only "site config 'site.toml'
+    does not exist", sending the user to look for a file that is where it was; the
+    line now names the gone folder and the fix. An absent file elsewhere reads as before."""
+    gone = tmp_path / "gone"
+    gone.mkdir()
+    monkeypatch.chdir(gone)
+    gone.rmdir()
+    assert main(["check", "site.toml"]) == 2
+    said = capsys.readouterr().err
+    assert "does not exist here: the current folder no longer exists" in said
+    monkeypatch.chdir(tmp_path)
+    assert main(["check", "site.toml"]) == 2
+    assert capsys.readouterr().err.strip() == "error: site config 'site.toml' does not exist"
