@@ -135,3 +135,30 @@ def test_a_relative_config_in_a_deleted_folder_names_the_folder(tmp_path, monkey
     monkeypatch.chdir(tmp_path)
     assert main(["check", "site.toml"]) == 2
     assert capsys.readouterr().err.strip() == "error: site config 'site.toml' does not exist"
+
+
+def test_a_batch_of_absolute_paths_starts_from_a_deleted_current_folder(tmp_path,
+                                                                        monkeypatch):
+    """`batch /abs/sites.toml` from a deleted current folder ended in a FileNotFoundError
+    from multiprocessing (``spawn.get_preparation_data`` asks ``os.getcwd`` to start each
+    worker), told as "the current folder no longer exists ... give absolute paths" of
+    absolute paths. The batch now runs in the network file's folder and goes back to the
+    deleted one after; a relative path is left to fail as before."""
+    import os
+    from pathlib import Path
+
+    from fluxpart.batch import _out_of_deleted_folder
+
+    sites = tmp_path / "net" / "sites.toml"
+    sites.parent.mkdir()
+    gone = tmp_path / "gone"
+    gone.mkdir()
+    monkeypatch.chdir(gone)
+    gone.rmdir()
+    with _out_of_deleted_folder(sites, None):
+        assert Path(os.getcwd()) == sites.parent
+    with pytest.raises(FileNotFoundError):
+        os.getcwd()                         # back in the deleted folder
+    with _out_of_deleted_folder(sites, "relative-out"):
+        with pytest.raises(FileNotFoundError):
+            os.getcwd()

@@ -1812,22 +1812,26 @@ def f_verify_saved_inside():
 
 
 def f_deleted_cwd():
-    """run from a folder deleted while the shell was in it: absolute paths work, a
-    relative one is one line."""
+    """run, verify and a Dask batch from a folder deleted while the shell was in it:
+    absolute paths work, a relative one is one line naming the gone folder."""
     gone = W / "gone"
     gone.mkdir(exist_ok=True)
     out = W / "gone_out"
     shutil.rmtree(out, ignore_errors=True)
+    make_net()
     cmd = (f"cd {gone} && rm -rf {gone} && {PY} -m fluxpart run {W / 'b' / 'site.toml'} "
-           f"--out {out} --quiet; echo $? >&2; {PY} -m fluxpart run site.toml --out rel "
-           "--quiet; echo $? >&2")
+           f"--out {out} --quiet; echo $? >&2; {PY} -m fluxpart verify --quiet {out}; "
+           f"echo $? >&2; {PY} -m fluxpart batch {NET / 'sites.toml'} --quiet; echo $? >&2; "
+           f"{PY} -m fluxpart run site.toml --out rel --quiet; echo $? >&2")
     done = _shell(cmd, cwd=W)
-    lines = done.stderr.strip().splitlines()
-    record("run from a deleted current folder (absolute, then relative paths)",
-           lines[:1] == ["0"] and lines[-1] == "2" and len(lines) == 3
-           and lines[1].startswith("error:") and "no longer exists" in lines[1]
-           and table_digests(out) == table_digests(W / "r0"),
-           f"{lines!r:.200}")
+    lines = [line for line in done.stderr.strip().splitlines() if not
+             line.startswith("warning:") and line.strip()]
+    codes = [line for line in lines if line.isdigit()]
+    said = [line for line in lines if line.startswith("error:")]
+    record("run, verify and batch from a deleted current folder (absolute paths), then a "
+           "relative one", codes == ["0", "0", "0", "2"] and len(said) == 1
+           and "no longer exists" in said[0] and table_digests(out) == table_digests(W / "r0")
+           and sites_verify(NET / "out") == [0] * 4, f"exits {codes}, {said!r:.200}")
 
 
 def f_two_csv_exports():
