@@ -666,20 +666,29 @@ def f_memory_limit():
         .replace("random_error_draws = 20", "random_error_draws = 5000"))
     for command, sizes in (("run", (100, 160, 200, 250, 300, 350, 400, 500)),
                            ("verify", (100, 160, 200, 300)), ("report", (160, 300, 360))):
-        seen = []
-        for megabytes in sizes:
-            folder = fresh("mem")
-            before = table_digests(folder)
-            args = {"run": ["run", "heavy.toml", "--out", folder, "--quiet"],
-                    "verify": ["verify", "--quiet", folder],
-                    "report": ["report", "--quiet", folder]}[command]
-            done = _limited_or_hung({resource.RLIMIT_AS: megabytes << 20}, *args)
-            fine = (done.returncode == 0 and verify(folder).returncode == 0) or (
-                one_line(done) and _intact(folder, before) and not leftovers(folder))
-            seen.append((megabytes, done.returncode, fine, done.stderr.strip()[-50:]))
+        seen = _limit_sweep(resource.RLIMIT_AS, command, sizes, "heavy.toml", "mem")
         record(f"a memory limit (ulimit -v {sizes[0]} .. {sizes[-1]} MB) during {command}"
                + (" of 2000 u* bootstrap and 5000 Monte Carlo draws" if command == "run"
                   else ""), all(s[2] for s in seen) and not leftovers(W), f"{seen}")
+
+
+def _limit_sweep(which, command, sizes, config, name):
+    """`command` (run of `config`, verify or report) on a fresh copy `name` of a result
+    under the memory limit `which` (a resource.RLIMIT_*) at each of `sizes` MB: for each,
+    (size, exit, whether it completed right or stopped with one line, the folder whole,
+    the end of standard error)."""
+    seen = []
+    for megabytes in sizes:
+        folder = fresh(name)
+        before = table_digests(folder)
+        args = {"run": ["run", config, "--out", folder, "--quiet"],
+                "verify": ["verify", "--quiet", folder],
+                "report": ["report", "--quiet", folder]}[command]
+        done = _limited_or_hung({which: megabytes << 20}, *args)
+        fine = (done.returncode == 0 and verify(folder).returncode == 0) or (
+            one_line(done) and _intact(folder, before) and not leftovers(folder))
+        seen.append((megabytes, done.returncode, fine, done.stderr.strip()[-50:]))
+    return seen
 
 
 def _bundle(name):
@@ -1514,14 +1523,21 @@ def f_matplotlib_config():
                f"{_same_report(folder, base)}, stderr {noise[:2]!r:.160}")
 
 
-def f_tmpdir_odd():
-    """``TMPDIR`` a dangling link, and on a full 64 kB tmpfs, under run, report, verify,
-    export --netcdf: each completes or stops with one line; nothing left."""
-    full = W / "tmpfull"
+def _full_tmpfs(name):
+    """A 64 kB tmpfs mounted at `name` in the scratch folder and filled to 60 kB; the path
+    and whether the mount was allowed."""
+    full = W / name
     full.mkdir(exist_ok=True)
     mounted = _mounted(full, "-t", "tmpfs", "-o", "size=64k", "tmpfs")
     if mounted:
         (full / "filler").write_bytes(b"\0" * (60 << 10))
+    return full, mounted
+
+
+def f_tmpdir_odd():
+    """``TMPDIR`` a dangling link, and on a full 64 kB tmpfs, under run, report, verify,
+    export --netcdf: each completes or stops with one line; nothing left."""
+    full, mounted = _full_tmpfs("tmpfull")
     try:
         for label, tmp in (("a dangling link", linked("tmpdangl", W / "tmp_nowhere")),
                            ("a full 64 kB tmpfs", full)):
@@ -1720,17 +1736,7 @@ def f_data_limit():
     import resource
     for command, sizes in (("run", (60, 100, 130, 150, 170, 200, 250)),
                            ("verify", (60, 100, 150, 200)), ("report", (60, 100, 150, 200))):
-        seen = []
-        for megabytes in sizes:
-            folder = fresh("dseg")
-            before = table_digests(folder)
-            args = {"run": ["run", "seed1.toml", "--out", folder, "--quiet"],
-                    "verify": ["verify", "--quiet", folder],
-                    "report": ["report", "--quiet", folder]}[command]
-            done = _limited_or_hung({resource.RLIMIT_DATA: megabytes << 20}, *args)
-            fine = (done.returncode == 0 and verify(folder).returncode == 0) or (
-                one_line(done) and _intact(folder, before) and not leftovers(folder))
-            seen.append((megabytes, done.returncode, fine, done.stderr.strip()[-50:]))
+        seen = _limit_sweep(resource.RLIMIT_DATA, command, sizes, "seed1.toml", "dseg")
         record(f"a data-segment limit (ulimit -d {sizes[0]} .. {sizes[-1]} MB) during "
                f"{command}", all(s[2] for s in seen) and not leftovers(W), f"{seen}")
 
@@ -1895,11 +1901,7 @@ def f_batch_scratch():
     """A Dask batch whose ``TMPDIR`` (where Dask's workers keep their scratch space) is a
     full 64 kB tmpfs, and one with ``HOME`` missing (Dask's configuration folder):
     completes, or one line; every site written verifies."""
-    full = W / "btmp"
-    full.mkdir(exist_ok=True)
-    mounted = _mounted(full, "-t", "tmpfs", "-o", "size=64k", "tmpfs")
-    if mounted:
-        (full / "filler").write_bytes(b"\0" * (60 << 10))
+    full, mounted = _full_tmpfs("btmp")
     try:
         for label, extra in (("TMPDIR a full tmpfs", dict(TMPDIR=str(full))),
                              ("HOME missing", dict(HOME="/nonexistent",
