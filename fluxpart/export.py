@@ -162,6 +162,12 @@ _CAUTION = ("A tower budget is one line of evidence for carbon-credit quantifica
 
 
 def _xarray():
+    from .fingerprint import load_blas_libraries
+
+    # xarray imports dask.array, which imports SciPy's FFT and its OpenBLAS: without room
+    # for its buffers OpenBLAS retried without end (`export --netcdf` hung under ulimit -d
+    # 200 MB, faults38); loaded first where the room is asked, the lack is one line
+    load_blas_libraries()
     try:
         import xarray
     except ImportError:

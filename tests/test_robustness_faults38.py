@@ -162,3 +162,20 @@ def test_a_batch_of_absolute_paths_starts_from_a_deleted_current_folder(tmp_path
     with _out_of_deleted_folder(sites, "relative-out"):
         with pytest.raises(FileNotFoundError):
             os.getcwd()
+
+
+def test_the_netcdf_export_asks_room_for_scipys_openblas_first(monkeypatch):
+    """xarray imports dask.array, which imports SciPy's FFT and with it SciPy's OpenBLAS;
+    without room for its buffers OpenBLAS retried without end: `export --netcdf` hung
+    under ``ulimit -d`` 200 MB and ``ulimit -v`` 450 MB, crashed at ``-d`` 235 MB (139)
+    and blamed a noexec file system at ``-v`` 550 MB. The libraries are now loaded (with
+    the room asked) before xarray is imported, so the lack is the one memory line; in
+    every case measured it is."""
+    from fluxpart import export, fingerprint
+
+    def no_room():
+        raise MemoryError("64 MiB for NumPy's OpenBLAS work buffers, 10 MiB left")
+
+    monkeypatch.setattr(fingerprint, "load_blas_libraries", no_room)
+    with pytest.raises(MemoryError):
+        export._xarray()

@@ -683,7 +683,9 @@ def _limit_sweep(which, command, sizes, config, name):
         before = table_digests(folder)
         args = {"run": ["run", config, "--out", folder, "--quiet"],
                 "verify": ["verify", "--quiet", folder],
-                "report": ["report", "--quiet", folder]}[command]
+                "report": ["report", "--quiet", folder],
+                "export": ["export", "--netcdf", W / f"{name}.nc", folder]}[command]
+        (W / f"{name}.nc").unlink(missing_ok=True)
         done = _limited_or_hung({which: megabytes << 20}, *args)
         fine = (done.returncode == 0 and verify(folder).returncode == 0) or (
             one_line(done) and _intact(folder, before) and not leftovers(folder))
@@ -1732,13 +1734,18 @@ def f_open_files_readers():
 
 def f_data_limit():
     """A data-segment limit (``ulimit -d``, RLIMIT_DATA: since Linux 4.7 every private
-    writable mapping counts) under run, verify and report."""
+    writable mapping counts) under run, verify, report and export --netcdf, and an
+    address-space limit under export --netcdf."""
     import resource
     for command, sizes in (("run", (60, 100, 130, 150, 170, 200, 250)),
-                           ("verify", (60, 100, 150, 200)), ("report", (60, 100, 150, 200))):
+                           ("verify", (60, 100, 150, 200)), ("report", (60, 100, 150, 200)),
+                           ("export", (150, 200, 235, 250))):
         seen = _limit_sweep(resource.RLIMIT_DATA, command, sizes, "seed1.toml", "dseg")
         record(f"a data-segment limit (ulimit -d {sizes[0]} .. {sizes[-1]} MB) during "
                f"{command}", all(s[2] for s in seen) and not leftovers(W), f"{seen}")
+    seen = _limit_sweep(resource.RLIMIT_AS, "export", (450, 550, 650), "seed1.toml", "dseg")
+    record("a memory limit (ulimit -v 450 .. 650 MB) during export --netcdf",
+           all(s[2] for s in seen) and not leftovers(W), f"{seen}")
 
 
 def f_signal_dispositions():
