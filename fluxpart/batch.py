@@ -741,7 +741,15 @@ def _failure(common: dict, error: BaseException) -> SiteOutcome:
     kind = ("output" if isinstance(error, OutputError)
             else "input" if isinstance(error, FluxpartError) else "internal")
     text = str(error) or repr(error)
-    trace = "" if kind in ("input", "output") else "".join(traceback.format_exception(error))
+    if isinstance(error, MemoryError):
+        # a worker's memory limit (ulimit -v or -d, a container's, a batch job's): the
+        # cluster's fault, told in one line; each site printed a 10-line traceback from
+        # the OpenBLAS room check or pyarrow's ArrowMemoryError (faults38)
+        text = (f"ran out of memory in the worker process ({str(error) or 'no detail'}): "
+                "give the workers more memory (their limit: ulimit -v or -d, a container's "
+                "or a batch job's)")
+    trace = ("" if kind in ("input", "output") or isinstance(error, MemoryError)
+             else "".join(traceback.format_exception(error)))
     # the first public class: a private subclass (the reader's _EmptyFileError) is no
     # name a user can look up or catch
     name = next(c.__name__ for c in type(error).__mro__ if not c.__name__.startswith("_"))

@@ -179,3 +179,19 @@ def test_the_netcdf_export_asks_room_for_scipys_openblas_first(monkeypatch):
     monkeypatch.setattr(fingerprint, "load_blas_libraries", no_room)
     with pytest.raises(MemoryError):
         export._xarray()
+
+
+def test_a_site_out_of_memory_in_a_batch_is_one_line():
+    """A batch whose workers run under a memory limit: each site failed as an internal
+    error with a 10-line traceback (the OpenBLAS room check's MemoryError, or pyarrow's
+    ArrowMemoryError, a MemoryError too). Now one line per site saying it ran out of
+    memory, no traceback; its kind stays 'internal' (the cluster's), the failures table
+    unchanged; another exception keeps its traceback."""
+    from fluxpart.batch import _failure
+
+    common = {"key": "a-site", "config": "/net/a/site.toml", "directory": "/net/out/a-site"}
+    failed = _failure(common, MemoryError("realloc of size 16384 failed"))
+    assert failed.kind == "internal" and failed.traceback == ""
+    assert failed.message.startswith("ran out of memory in the worker process (realloc")
+    assert "\n" not in failed.note
+    assert _failure(common, ValueError("a bug")).traceback

@@ -1746,6 +1746,15 @@ def f_data_limit():
     seen = _limit_sweep(resource.RLIMIT_AS, "export", (450, 550, 650), "seed1.toml", "dseg")
     record("a memory limit (ulimit -v 450 .. 650 MB) during export --netcdf",
            all(s[2] for s in seen) and not leftovers(W), f"{seen}")
+    make_net()
+    done = limited({resource.RLIMIT_DATA: 200 << 20}, "batch", "sites.toml", "--quiet",
+                   "--workers", "1", cwd=NET, timeout=600)
+    said = [line for line in done.stderr.splitlines() if not line.startswith("warning:")
+            and line.strip()]
+    record("a Dask batch under ulimit -d 200 MB: one line per failed site",
+           done.returncode in (0, 1) and "Traceback" not in done.stderr
+           and all(line.startswith("error:") for line in said), f"exit {done.returncode}, "
+           f"{len(said)} lines, {said[:1]!r:.160}")
 
 
 def f_signal_dispositions():
