@@ -85,8 +85,8 @@ from .store import (
 )
 
 __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_leftovers",
-           "dangling_link_above", "folder_identity", "folder_lock", "interrupted_writes", "lock_file", "make_staging",
-           "read_folder",
+           "dangling_link_above", "folder_identity", "folder_lock", "interrupted_writes",
+           "lock_file", "make_staging", "read_folder",
            "recover_missing",
            "replace_refusal", "swapped_in", "write_folder"]
 

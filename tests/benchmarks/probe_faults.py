@@ -44,6 +44,20 @@ only); SIGTERM and SIGINT during export --netcdf and report; one table replaced 
 another run's under a valid manifest; diff of a folder of release 0.30.0 (605729f
 unpacked with git archive under the scratch folder) and a new one; the input's tmpfs
 unmounted lazily (umount -l) while run holds it open.
+
+Round faults38 (the machine's environment): verify looped while run replaces a folder;
+--out below a dangling link, below a file, a device node; standard streams closed, full
+or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
+Latin-1 locales (verified under UTF-8); report and CSV under a decimal-comma locale and
+the farthest zones; matplotlib's configuration a file, a user's matplotlibrc, no HOME;
+TMPDIR a dangling link or a full tmpfs; umask 077 and 777; paths 300 and 4200 bytes
+deep; a logger appending; the input edited after check; the clock at 1970 and 2099
+(time.time patched by a sitecustomize); nice with ulimit -t; ulimit -n 16 under the
+readers; ulimit -d (RLIMIT_DATA) under run, verify, report, export and batch, ulimit -v
+under export --netcdf; nohup, SIGTSTP/SIGCONT/SIGWINCH, SIGCHLD ignored, SIGQUIT;
+verify's report saved inside the result; a deleted current folder (run, verify, batch);
+two CSV exports at once; no file locks (ENOLCK); BLAS kernels and NumPy's SIMD cut
+back; a batch's scratch on a full tmpfs or without HOME.
 """
 import hashlib
 import os
