@@ -1011,6 +1011,15 @@ def _address_space_limited() -> bool:
                for which in (_resource.RLIMIT_AS, _resource.RLIMIT_DATA))
 
 
+def _end_process(code: int) -> None:
+    """End the `fluxpart` process with `code` now, its output flushed, without the
+    interpreter's clean-up (which a native library's failure can crash: SIGSEGV)."""
+    for stream in (sys.stdout, sys.stderr):
+        with contextlib.suppress(OSError, ValueError):
+            stream.flush()
+    os._exit(code)
+
+
 def main(argv=None) -> int:
     """Run the command line; return the exit status.
 
@@ -1059,9 +1068,7 @@ def main(argv=None) -> int:
             # then crashed the process (SIGSEGV, exit 139) after the error line. Only on this
             # path, and only as the `fluxpart` process itself (not main() called from Python),
             # the process ends here: the output is flushed, nothing else is left to do.
-            sys.stdout.flush()
-            sys.stderr.flush()
-            os._exit(2)
+            _end_process(2)
         return 2
     except KeyboardInterrupt:
         # a result folder is written whole or not at all (fluxpart.resultdir), so an
@@ -1091,6 +1098,11 @@ def main(argv=None) -> int:
               f"container's or a batch job's); "
               f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
               "memory", file=sys.stderr)
+        if argv is None:
+            # the interpreter's clean-up under the same limit crashed after the line
+            # (`check` under ulimit -d 60 MB: SIGSEGV, exit 139, faults38); the command's
+            # work is undone and its output flushed, so the `fluxpart` process ends here
+            _end_process(2)
         return 2
     except (ImportError, SystemError) as error:
         words = _library_not_loaded(error)
@@ -1107,9 +1119,7 @@ def main(argv=None) -> int:
             # a library loaded part-way crashed the interpreter's clean-up at exit (SIGSEGV,
             # exit 139 after the line, ulimit -v 280 MB); the command's work is undone and
             # its output flushed, so the process ends here, as the `fluxpart` process only
-            sys.stdout.flush()
-            sys.stderr.flush()
-            os._exit(2)
+            _end_process(2)
         return 2
     except RuntimeError as error:
         if not str(error).startswith("Symlink loop"):

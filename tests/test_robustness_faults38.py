@@ -14,6 +14,17 @@ from fluxpart.cli import main
 from fluxpart.errors import OutputError
 
 
+def _child(code: str) -> subprocess.CompletedProcess:
+    """`code` run by a child Python that imports this tree's fluxpart."""
+    import os
+    from pathlib import Path
+
+    tree = str(Path(__file__).resolve().parents[1])
+    env = dict(os.environ, PYTHONPATH=tree + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    return subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          timeout=60, env=env)
+
+
 def test_a_data_segment_limit_counts_as_a_memory_limit():
     """``ulimit -d`` (RLIMIT_DATA) counts every private writable mapping since Linux 4.7
     (setrlimit(2) (m)), OpenBLAS's 32 MiB work buffers among them. Only ``ulimit -v`` was
@@ -23,22 +34,22 @@ def test_a_data_segment_limit_counts_as_a_memory_limit():
     its buffers, and its lack is the one line about memory (exit 2)."""
     if not sys.platform.startswith("linux"):
         pytest.skip("RLIMIT_DATA of private mappings is Linux's (4.7 and later)")
-    probe = (
-        "import resource\n"
-        "resource.setrlimit(resource.RLIMIT_DATA, (90 << 20, resource.RLIM_INFINITY))\n"
-        "from fluxpart import cli, fingerprint\n"
-        "room = fingerprint._address_headroom()\n"
-        "assert room is not None and 0 < room < 90 << 20, room\n"
-        "assert cli._address_space_limited()\n"
-        "try:\n"
-        "    fingerprint.require_address_space(room + 1, 'for a test')\n"
-        "except MemoryError as error:\n"
-        "    assert 'ulimit -v or -d' in str(error), error\n"
-        "else:\n"
-        "    raise SystemExit('no MemoryError')\n"
-        "fingerprint.require_address_space(room // 2, 'for a test')\n")
-    done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
-                          timeout=60)
+    probe = """\
+import resource
+resource.setrlimit(resource.RLIMIT_DATA, (90 << 20, resource.RLIM_INFINITY))
+from fluxpart import cli, fingerprint
+room = fingerprint._address_headroom()
+assert room is not None and 0 < room < 90 << 20, room
+assert cli._address_space_limited()
+try:
+    fingerprint.require_address_space(room + 1, 'for a test')
+except MemoryError as error:
+    assert 'ulimit -v or -d' in str(error), error
+else:
+    raise SystemExit('no MemoryError')
+fingerprint.require_address_space(room // 2, 'for a test')
+"""
+    done = _child(probe)
     assert done.returncode == 0, done.stderr[-800:]
 
 
@@ -195,3 +206,33 @@ def test_a_site_out_of_memory_in_a_batch_is_one_line():
     assert failed.message.startswith("ran out of memory in the worker process (realloc")
     assert "\n" not in failed.note
     assert _failure(common, ValueError("a bug")).traceback
+
+
+def test_out_of_memory_ends_the_process_without_the_interpreters_clean_up():
+    """Under ``ulimit -d`` 60 MB `check` printed its one memory line, then the
+    interpreter's clean-up under the same limit crashed (SIGSEGV, exit 139). As the
+    `fluxpart` process itself, a MemoryError's line is now the end: output flushed, exit
+    2, no clean-up (an ``atexit`` function does not run); called from Python, main()
+    returns 2 as before."""
+    probe = """\
+import atexit, sys
+from fluxpart import cli
+atexit.register(lambda: print('clean-up ran', file=sys.stderr))
+parse = cli._parse
+def out_of_memory(args):
+    raise MemoryError
+def parsed(argv):
+    args = parse(argv)
+    args.handler = out_of_memory
+    return args
+cli._parse = parsed
+print('returned', cli.main(['check', 'x.toml']), flush=True)
+sys.argv = ['fluxpart', 'check', 'x.toml']
+cli.main()
+print('not reached')
+"""
+    done = _child(probe)
+    assert done.returncode == 2, done.stderr[-600:]
+    assert done.stdout.splitlines() == ["returned 2"]
+    lines = done.stderr.splitlines()
+    assert len(lines) == 2 and all(line.startswith("error: ran out of memory") for line in lines)
