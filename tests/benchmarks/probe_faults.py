@@ -1760,6 +1760,12 @@ def f_data_limit():
     seen = _limit_sweep(resource.RLIMIT_AS, "export", (450, 550, 650), "seed1.toml", "dseg")
     record("a memory limit (ulimit -v 450 .. 650 MB) during export --netcdf",
            all(s[2] for s in seen) and not leftovers(W), f"{seen}")
+    seen = []
+    for megabytes in (60, 70, 150):
+        done = _limited_or_hung({resource.RLIMIT_DATA: megabytes << 20}, "check", "site.toml")
+        seen.append((megabytes, done.returncode, done.returncode in (0, 1)
+                     or (done.returncode == 2 and len(errlines(done)) == 1)))
+    record("ulimit -d 60 .. 150 MB during check", all(s[2] for s in seen), f"{seen}")
     make_net()
     done = limited({resource.RLIMIT_DATA: 200 << 20}, "batch", "sites.toml", "--quiet",
                    "--workers", "1", cwd=NET, timeout=600)
