@@ -107,6 +107,22 @@ def read_site_config_toml(path) -> dict:
     return document
 
 
+def _relative_to_gone_folder(path) -> str:
+    """What to add where a relative `path` was looked up in a current folder that no
+    longer exists (deleted or replaced while the shell was in it), else ``""``.
+
+    Every relative path then "does not exist", though the file may well be where the
+    user sees it; getcwd(3) fails with ENOENT (m) (faults38)."""
+    if Path(path).is_absolute():
+        return ""
+    try:
+        os.getcwd()
+    except FileNotFoundError:
+        return (" here: the current folder no longer exists (deleted or replaced while this "
+                "shell was in it); cd to an existing folder, or give an absolute path")
+    return ""
+
+
 def read_toml(path, what: str) -> dict:
     """Parse the TOML file `path`; `what` names it in errors (e.g. ``"site config"``).
 
@@ -133,7 +149,8 @@ def read_toml(path, what: str) -> dict:
     try:
         data = path.read_bytes()
     except FileNotFoundError:
-        raise InputFileError(f"{what} {str(path)!r} does not exist") from None
+        raise InputFileError(f"{what} {str(path)!r} does not exist"
+                             f"{_relative_to_gone_folder(path)}") from None
     except OSError as error:
         raise InputFileError(f"{what} {str(path)!r} cannot be read: "
                              f"{error.strerror or error}") from None

@@ -55,6 +55,7 @@ import uuid
 import warnings
 from collections import Counter
 from concurrent.futures import CancelledError
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -740,7 +741,15 @@ def _failure(common: dict, error: BaseException) -> SiteOutcome:
     kind = ("output" if isinstance(error, OutputError)
             else "input" if isinstance(error, FluxpartError) else "internal")
     text = str(error) or repr(error)
-    trace = "" if kind in ("input", "output") else "".join(traceback.format_exception(error))
+    if isinstance(error, MemoryError):
+        # a worker's memory limit (ulimit -v or -d, a container's, a batch job's): the
+        # cluster's fault, told in one line; each site printed a 10-line traceback from
+        # the OpenBLAS room check or pyarrow's ArrowMemoryError (faults38)
+        text = (f"ran out of memory in the worker process ({str(error) or 'no detail'}): "
+                "give the workers more memory (their limit: ulimit -v or -d, a container's "
+                "or a batch job's)")
+    trace = ("" if kind in ("input", "output") or isinstance(error, MemoryError)
+             else "".join(traceback.format_exception(error)))
     # the first public class: a private subclass (the reader's _EmptyFileError) is no
     # name a user can look up or catch
     name = next(c.__name__ for c in type(error).__mro__ if not c.__name__.startswith("_"))
@@ -1483,6 +1492,44 @@ def run_batch(sites_file, *, scheduler=None, workers=None, out=None, force=False
     cluster of a process and keeps that moment's environment variables for the
     workers of later clusters.
     """
+    with _out_of_deleted_folder(sites_file, out):
+        return _run_batch(sites_file, scheduler, workers, out, force, progress,
+                          site_time_limit)
+
+
+@contextmanager
+def _out_of_deleted_folder(sites_file, out):
+    """Run the block in the network file's folder where the current folder was deleted
+    (a shell left in a folder another run replaced) and every path given is absolute;
+    back in the deleted folder after it (through a descriptor opened on it).
+
+    Python's multiprocessing asks for the current folder to start each process
+    (``spawn.get_preparation_data`` calls ``os.getcwd``, which fails with ENOENT,
+    getcwd(3) (m)): a batch of absolute paths ended in a FileNotFoundError, told as
+    "the current folder no longer exists ... give absolute paths" (faults38). A
+    relative path is left to fail as before: it has no folder to be found in.
+    """
+    try:
+        os.getcwd()
+        gone = False
+    except FileNotFoundError:
+        gone = True
+    given = [Path(p) for p in (sites_file, out) if p is not None]
+    if not gone or not all(p.is_absolute() for p in given):
+        yield
+        return
+    here = os.open(".", os.O_RDONLY)
+    try:
+        os.chdir(Path(sites_file).parent)
+        yield
+    finally:
+        os.fchdir(here)
+        os.close(here)
+
+
+def _run_batch(sites_file, scheduler, workers, out, force, progress,
+               site_time_limit) -> BatchReport:
+    """:func:`run_batch` in a current folder that exists."""
     code_fingerprint()               # the client's code as loaded now (fluxpart.worker_match)
     network = read_sites_file(sites_file)
     limit = (network.site_time_limit if site_time_limit is None

@@ -1014,13 +1014,25 @@ def _library_not_loaded(error: ImportError | SystemError) -> str | None:
 
 
 def _address_space_limited() -> bool:
-    """Whether this process runs under a limit on its address space (``ulimit -v``).
+    """Whether this process runs under a limit on its address space or its data segment
+    (``ulimit -v``, ``ulimit -d``: since Linux 4.7 the latter counts every private writable
+    mapping, setrlimit(2) (m)).
 
     :mod:`resource` is imported with this module: a compiled module itself, it cannot be
     loaded once the limit is reached."""
     if _resource is None:       # not POSIX
         return False
-    return _resource.getrlimit(_resource.RLIMIT_AS)[0] != _resource.RLIM_INFINITY
+    return any(_resource.getrlimit(which)[0] != _resource.RLIM_INFINITY
+               for which in (_resource.RLIMIT_AS, _resource.RLIMIT_DATA))
+
+
+def _end_process(code: int) -> None:
+    """End the `fluxpart` process with `code` now, its output flushed, without the
+    interpreter's clean-up (which a native library's failure can crash: SIGSEGV)."""
+    for stream in (sys.stdout, sys.stderr):
+        with contextlib.suppress(OSError, ValueError):
+            stream.flush()
+    os._exit(code)
 
 
 def main(argv=None) -> int:
@@ -1071,9 +1083,7 @@ def main(argv=None) -> int:
             # then crashed the process (SIGSEGV, exit 139) after the error line. Only on this
             # path, and only as the `fluxpart` process itself (not main() called from Python),
             # the process ends here: the output is flushed, nothing else is left to do.
-            sys.stdout.flush()
-            sys.stderr.flush()
-            os._exit(2)
+            _end_process(2)
         return 2
     except KeyboardInterrupt:
         # a result folder is written whole or not at all (fluxpart.resultdir), so an
@@ -1099,10 +1109,15 @@ def main(argv=None) -> int:
         # a memory limit (ulimit -v, a container's or a batch job's) reached inside NumPy or
         # pandas: a traceback ending in _ArrayMemoryError; the write stages are undone on
         # any exception (resultdir.swapped_in), so the folder is as it was
-        print(f"error: ran out of memory (a memory limit of this process: ulimit -v, a "
+        print(f"error: ran out of memory (a memory limit of this process: ulimit -v or -d, a "
               f"container's or a batch job's); "
               f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
               "memory", file=sys.stderr)
+        if argv is None:
+            # the interpreter's clean-up under the same limit crashed after the line
+            # (`check` under ulimit -d 60 MB: SIGSEGV, exit 139, faults38); the command's
+            # work is undone and its output flushed, so the `fluxpart` process ends here
+            _end_process(2)
         return 2
     except (ImportError, SystemError) as error:
         words = _library_not_loaded(error)
@@ -1112,16 +1127,14 @@ def main(argv=None) -> int:
         # load: a 15-line traceback, exit 1 (ulimit -v 150 to 300 MB in run and verify,
         # faults36)
         print(f"error: ran out of memory loading a library ({words}; a memory limit of "
-              "this process: ulimit -v, a container's or a batch job's); "
+              "this process: ulimit -v or -d, a container's or a batch job's); "
               f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
               "memory", file=sys.stderr)
         if argv is None:
             # a library loaded part-way crashed the interpreter's clean-up at exit (SIGSEGV,
             # exit 139 after the line, ulimit -v 280 MB); the command's work is undone and
             # its output flushed, so the process ends here, as the `fluxpart` process only
-            sys.stdout.flush()
-            sys.stderr.flush()
-            os._exit(2)
+            _end_process(2)
         return 2
     except RuntimeError as error:
         if not str(error).startswith("Symlink loop"):
@@ -1148,7 +1161,7 @@ def main(argv=None) -> int:
             # the system refused memory to a system call (importlib listing a package
             # folder under ulimit -v 600 MB in `export`: a 35-line traceback, exit 1)
             print(f"error: ran out of memory ({error.strerror}; a memory limit of this "
-                  "process: ulimit -v, a container's or a batch job's); "
+                  "process: ulimit -v or -d, a container's or a batch job's); "
                   f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
                   "memory", file=sys.stderr)
             return 2

@@ -115,8 +115,12 @@ def caller_stacklevel() -> int:
 
     package = str(Path(__file__).resolve().parent) + os.sep
     frame, level = sys._getframe(1), 1
-    while frame is not None and str(Path(frame.f_code.co_filename).resolve()).startswith(
-            package):
+    # a frame's file name that is not absolute ("<frozen runpy>" under `python -m`,
+    # "<string>", "<stdin>") is no file of the package: resolving it asked for the current
+    # folder, and a shell in a deleted folder ended `run` and `verify` of absolute paths
+    # with "the current folder no longer exists ... give absolute paths" (faults38)
+    while frame is not None and os.path.isabs(frame.f_code.co_filename) and os.path.realpath(
+            frame.f_code.co_filename).startswith(package):
         frame, level = frame.f_back, level + 1
     return level
 

@@ -162,6 +162,12 @@ _CAUTION = ("A tower budget is one line of evidence for carbon-credit quantifica
 
 
 def _xarray():
+    from .fingerprint import load_blas_libraries
+
+    # xarray imports dask.array, which imports SciPy's FFT and its OpenBLAS: without room
+    # for its buffers OpenBLAS retried without end (`export --netcdf` hung under ulimit -d
+    # 200 MB, faults38); loaded first where the room is asked, the lack is one line
+    load_blas_libraries()
     try:
         import xarray
     except ImportError:
@@ -884,8 +890,11 @@ def _write_locked(dataset, path: Path, engine: str, held: ExitStack) -> Path:
     leftover (made before the second began, not yet written to) and the first failed
     "writing failed (No such file or directory) ... free space" (round faults27).
     """
-    from .resultdir import DEFAULT_LOCK_TIMEOUT, folder_lock
+    from .resultdir import DEFAULT_LOCK_TIMEOUT, dangling_link_above, folder_lock
 
+    dangling = dangling_link_above(path)
+    if dangling:
+        raise OutputError(f"--netcdf {str(path)!r} {dangling}; choose another place")
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
         # a probe, removed at once: a folder that cannot be written or a name too long

@@ -420,6 +420,11 @@ def write_csv(result, folder) -> Path:
         source, stored = _computed_by(directory), True
     files = csv_tables(result, source, stored=stored)
     parent = target.absolute().parent
+    from .resultdir import dangling_link_above
+
+    dangling = dangling_link_above(target)
+    if dangling:
+        raise OutputError(f"--csv {str(target)!r} {dangling}; choose another place")
     for ancestor in (parent, *parent.parents):
         if ancestor.exists() or ancestor.is_symlink():
             if not ancestor.is_dir():

@@ -109,19 +109,29 @@ OPENBLAS_BUFFER = 32 << 20
 
 
 def _address_headroom() -> int | None:
-    """Bytes this process may still map under its address-space limit (``ulimit -v``),
-    or None where there is no limit or it cannot be told (not Linux)."""
+    """Bytes this process may still map under its memory limits, or None where there is
+    no limit or it cannot be told (not Linux).
+
+    Two limits count: the address space (``ulimit -v``, RLIMIT_AS) against every mapping
+    (``VmSize``), and the data segment (``ulimit -d``, RLIMIT_DATA), which since Linux 4.7
+    counts every private writable mapping (``VmData``: the heap and each anonymous mmap,
+    such as OpenBLAS's work buffers), setrlimit(2) and proc(5) (m). Under ``ulimit -d``
+    alone `run` hung in OpenBLAS (100 MB), or it printed "Memory allocation still failed"
+    and ended with exit 1 (60 MB), where the address space was not limited (faults38).
+    """
     try:
-        import os
         import resource
 
-        soft = resource.getrlimit(resource.RLIMIT_AS)[0]
-        if soft == resource.RLIM_INFINITY:
+        limits = {"VmSize:": resource.getrlimit(resource.RLIMIT_AS)[0],
+                  "VmData:": resource.getrlimit(resource.RLIMIT_DATA)[0]}
+        limits = {key: soft for key, soft in limits.items() if soft != resource.RLIM_INFINITY}
+        if not limits:
             return None
-        with open("/proc/self/statm") as statm:
-            pages = int(statm.read().split()[0])
-        return soft - pages * os.sysconf("SC_PAGE_SIZE")
-    except (ImportError, OSError, ValueError, IndexError):
+        with open("/proc/self/status") as status:
+            used = {fields[0]: int(fields[1]) << 10 for fields in map(str.split, status)
+                    if fields and fields[0] in limits}
+        return min(soft - used[key] for key, soft in limits.items())
+    except (ImportError, OSError, ValueError, IndexError, KeyError):
         return None
 
 
@@ -138,7 +148,7 @@ def require_address_space(needed: int, purpose: str) -> None:
     headroom = _address_headroom()
     if headroom is not None and headroom < needed:
         raise MemoryError(f"{needed >> 20} MiB {purpose}, {max(headroom, 0) >> 20} MiB left "
-                          "under the address-space limit")
+                          "under the memory limit (ulimit -v or -d)")
 
 
 def _openblas_loaded(library: Path) -> bool:

@@ -78,14 +78,15 @@ from .store import (
     read_table,
     require_owner_access,
     set_mode,
+    special_kind,
     table_shape,
     unreadable,
     write_table,
 )
 
 __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_leftovers",
-           "folder_identity", "folder_lock", "interrupted_writes", "lock_file", "make_staging",
-           "read_folder",
+           "dangling_link_above", "folder_identity", "folder_lock", "interrupted_writes",
+           "lock_file", "make_staging", "read_folder",
            "recover_missing",
            "replace_refusal", "swapped_in", "write_folder"]
 
@@ -201,8 +202,10 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
                               "never makes and never follows; remove the link (its target "
                               "is untouched) and run again") from None
         remedy = (full_disk_remedy(path.parent) if error.errno == errno.ENOSPC
+                  else _NO_LOCKS_REMEDY if error.errno == errno.ENOLCK
                   else "choose a writable output folder")
-        raise OutputError(f"cannot create the lock file {str(path)!r} beside the output folder: "
+        verb = "lock" if error.errno == errno.ENOLCK else "create"
+        raise OutputError(f"cannot {verb} the lock file {str(path)!r} beside the output folder: "
                           f"{error.strerror or error}; {remedy}") from None
     try:
         yield path
@@ -213,6 +216,15 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
             with _suppress_os_error():
                 path.unlink()
         lock.release()
+
+
+#: What to do where the file system gives no locks (ENOLCK, "No locks available": an NFS
+#: mount whose lock service is not running or that was mounted ``nolock``, flock(2) and
+#: nfs(5) (m)); "choose a writable output folder" sent the user after a permission that
+#: was never missing (faults38)
+_NO_LOCKS_REMEDY = ("the file system there gives no file locks (an NFS mount without its "
+                    "lock service, or mounted with nolock); start its lock service, mount it "
+                    "with local_lock=flock, or write the result to a local disk and copy it")
 
 
 def _acquire(lock, directory, path: Path, timeout: float, notify) -> None:
@@ -472,6 +484,37 @@ def other_site_reason(directory, site_name) -> str | None:
 _A_FILE = "exists and is not a folder (an existing file)"
 
 
+def dangling_link_above(path) -> str | None:
+    """Why no folder can be made for `path`: a folder above it is a symbolic link that
+    leads nowhere (its target moved, deleted or not mounted); None where there is none.
+
+    Parameters
+    ----------
+    path : path-like
+        A folder or file to be written (itself a link or not: a writer writes at a link's
+        target).
+
+    Returns
+    -------
+    str or None
+        The reason, to follow the path's name in a message.
+
+    Notes
+    -----
+    ``Path.exists`` follows links, so the folder looked missing and ``mkdir(parents=True)``
+    then met the link: `run` ended in a FileExistsError traceback after its whole
+    computation, and `report`, `export --csv` and `--netcdf` blamed "File exists" or a
+    file (faults38).
+    """
+    for above in Path(path).absolute().parents:
+        if above.exists():
+            return None
+        if above.is_symlink():
+            return (f"lies below {str(above)!r}, a symbolic link to {os.readlink(above)!r}, "
+                    "which does not exist (create or mount what it leads to)")
+    return None
+
+
 def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
                     kind: str = "a fluxpart result folder") -> str | None:
     """Why the folder `directory` must not be replaced whole, or None when it may be.
@@ -502,9 +545,11 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     if too_long:
         return too_long
     if not directory.exists():
-        return None
+        return dangling_link_above(directory)
     if not directory.is_dir():
-        return _A_FILE
+        # a device node or a named pipe was called "an existing file" (faults38)
+        kind = special_kind(directory)
+        return f"exists and is not a folder ({kind})" if kind else _A_FILE
     if os.path.ismount(directory):
         return _MOUNT_POINT.format(inside=str(directory / "result"))
     try:

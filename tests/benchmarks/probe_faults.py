@@ -44,6 +44,20 @@ only); SIGTERM and SIGINT during export --netcdf and report; one table replaced 
 another run's under a valid manifest; diff of a folder of release 0.30.0 (605729f
 unpacked with git archive under the scratch folder) and a new one; the input's tmpfs
 unmounted lazily (umount -l) while run holds it open.
+
+Round faults38 (the machine's environment): verify looped while run replaces a folder;
+--out below a dangling link, below a file, a device node; standard streams closed, full
+or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
+Latin-1 locales (verified under UTF-8); report and CSV under a decimal-comma locale and
+the farthest zones; matplotlib's configuration a file, a user's matplotlibrc, no HOME;
+TMPDIR a dangling link or a full tmpfs; umask 077 and 777; paths 300 and 4200 bytes
+deep; a logger appending; the input edited after check; the clock at 1970 and 2099
+(time.time patched by a sitecustomize); nice with ulimit -t; ulimit -n 16 under the
+readers; ulimit -d (RLIMIT_DATA) under run, verify, report, export and batch, ulimit -v
+under export --netcdf; nohup, SIGTSTP/SIGCONT/SIGWINCH, SIGCHLD ignored, SIGQUIT;
+verify's report saved inside the result; a deleted current folder (run, verify, batch);
+two CSV exports at once; no file locks (ENOLCK); BLAS kernels and NumPy's SIMD cut
+back; a batch's scratch on a full tmpfs or without HOME.
 """
 import hashlib
 import os
@@ -81,7 +95,8 @@ m["seal"] = manifest_seal(m)
 
 def fp(*args, env=None, cwd=None, timeout=300):
     return subprocess.run([PY, "-m", "fluxpart", *map(str, args)], env=env or ENV,
-                          cwd=cwd or W / "b", capture_output=True, text=True, timeout=timeout)
+                          cwd=cwd or W / "b", capture_output=True, text=True, timeout=timeout,
+                          errors="backslashreplace")
 
 
 def start(*args, env=None, cwd=None):
@@ -665,20 +680,31 @@ def f_memory_limit():
         .replace("random_error_draws = 20", "random_error_draws = 5000"))
     for command, sizes in (("run", (100, 160, 200, 250, 300, 350, 400, 500)),
                            ("verify", (100, 160, 200, 300)), ("report", (160, 300, 360))):
-        seen = []
-        for megabytes in sizes:
-            folder = fresh("mem")
-            before = table_digests(folder)
-            args = {"run": ["run", "heavy.toml", "--out", folder, "--quiet"],
-                    "verify": ["verify", "--quiet", folder],
-                    "report": ["report", "--quiet", folder]}[command]
-            done = _limited_or_hung({resource.RLIMIT_AS: megabytes << 20}, *args)
-            fine = (done.returncode == 0 and verify(folder).returncode == 0) or (
-                one_line(done) and _intact(folder, before) and not leftovers(folder))
-            seen.append((megabytes, done.returncode, fine, done.stderr.strip()[-50:]))
+        seen = _limit_sweep(resource.RLIMIT_AS, command, sizes, "heavy.toml", "mem")
         record(f"a memory limit (ulimit -v {sizes[0]} .. {sizes[-1]} MB) during {command}"
                + (" of 2000 u* bootstrap and 5000 Monte Carlo draws" if command == "run"
                   else ""), all(s[2] for s in seen) and not leftovers(W), f"{seen}")
+
+
+def _limit_sweep(which, command, sizes, config, name):
+    """`command` (run of `config`, verify or report) on a fresh copy `name` of a result
+    under the memory limit `which` (a resource.RLIMIT_*) at each of `sizes` MB: for each,
+    (size, exit, whether it completed right or stopped with one line, the folder whole,
+    the end of standard error)."""
+    seen = []
+    for megabytes in sizes:
+        folder = fresh(name)
+        before = table_digests(folder)
+        args = {"run": ["run", config, "--out", folder, "--quiet"],
+                "verify": ["verify", "--quiet", folder],
+                "report": ["report", "--quiet", folder],
+                "export": ["export", "--netcdf", W / f"{name}.nc", folder]}[command]
+        (W / f"{name}.nc").unlink(missing_ok=True)
+        done = _limited_or_hung({which: megabytes << 20}, *args)
+        fine = (done.returncode == 0 and verify(folder).returncode == 0) or (
+            one_line(done) and _intact(folder, before) and not leftovers(folder))
+        seen.append((megabytes, done.returncode, fine, done.stderr.strip()[-50:]))
+    return seen
 
 
 def _bundle(name):
@@ -1322,6 +1348,616 @@ def f_input_unmounted_lazily():
         subprocess.run(["umount", str(share)])
 
 
+# ------------------------------------------------------------------ round faults38
+def _same_report(folder, base):
+    """The report page (its folder name aside) and figures of `folder` equal `base`'s."""
+    def files(f):
+        return {q.name: q.read_bytes().replace(
+            b"<code>" + Path(f).name.encode() + b"<", b"<code>F<") if q.suffix == ".html"
+                else q.read_bytes() for q in sorted((Path(f) / "report").iterdir())}
+    return (Path(folder) / "report").is_dir() and files(folder) == files(base)
+
+
+def _report_base():
+    base = W / "rep_base"
+    if not (base / "report").is_dir():
+        fresh("rep_base")
+        fp("report", "--quiet", base)
+    return base
+
+
+def f_run_while_verify():
+    """Three verifies of a folder while run replaces it with another seed's result."""
+    folder = fresh("rwv")
+    proc = start("run", "seed1.toml", "--out", folder, "--quiet")
+    checks = []
+    while proc.poll() is None:
+        checks.append(verify(folder))
+    proc.communicate(timeout=120)
+    checks.append(verify(folder))
+    codes = [c.returncode for c in checks]
+    tb = any("Traceback" in c.stderr for c in checks)
+    record("verify again and again while run replaces the folder with another seed's",
+           proc.returncode == 0 and set(codes) == {0} and not tb and not leftovers(W)
+           and table_digests(folder) == table_digests(W / "r1"),
+           f"run {proc.returncode}, verify exits {codes}, traceback {tb}")
+
+
+def f_out_odd_parents():
+    """``--out`` below a dangling symbolic link, below a regular file, and a device node
+    (mknod c 1 3, the null device's numbers, made in the scratch folder)."""
+    dangling = linked("dangl", W / "nowhere")
+    plain = W / "pfile"
+    plain.write_text("not a folder\n")
+    node = W / "nulldev"
+    node.unlink(missing_ok=True)
+    made = subprocess.run(["mknod", str(node), "c", "1", "3"]).returncode == 0
+    for label, out in (("below a dangling symbolic link", dangling / "out"),
+                       ("below a regular file", plain / "out"),
+                       ("a character device node", node)):
+        if out == node and not made:
+            record(f"run --out {label}", False, "mknod refused: not probed")
+            continue
+        done = fp("run", "site.toml", "--out", out, "--quiet")
+        kept = (node.is_char_device() if out == node else
+                plain.read_text() == "not a folder\n" and not (W / "nowhere").exists())
+        record(f"run --out {label}", (one_line(done) or (
+            done.returncode == 0 and verify(out).returncode == 0)) and kept
+            and not leftovers(W), f"exit {done.returncode}, {_stderr_tail(done, 170)}, "
+            f"kept {kept}, left {leftovers(W)}")
+
+
+def _shell(command, env=None, cwd=None):
+    return subprocess.run(["bash", "-c", command], env=env or ENV, cwd=cwd or W / "b",
+                          capture_output=True, text=True, timeout=300)
+
+
+def f_closed_streams():
+    """A reader that closes at once (``| true``), standard output closed (``>&-``),
+    standard input closed (``<&-``), standard output full (``> /dev/full``)."""
+    fresh("cs")
+    run = f"{PY} -m fluxpart run site.toml --out {W / 'cs_run'}"
+    shutil.rmtree(W / "cs_run", ignore_errors=True)
+    cases = [("run | (a reader closing at once)", f"{run} | true; echo ${{PIPESTATUS[0]}} >&2", 0),
+             ("check | (closing at once)", f"{PY} -m fluxpart check site.toml | true; "
+              "echo ${PIPESTATUS[0]} >&2", None),
+             ("verify >&-", f"{PY} -m fluxpart verify {W / 'cs'} >&-; echo $? >&2", 0),
+             ("report <&-", f"{PY} -m fluxpart report --quiet {W / 'cs'} <&-; echo $? >&2", 0),
+             ("export --csv <&- >&-", f"{PY} -m fluxpart export --csv {W / 'cs_csv'} "
+              f"{W / 'cs'} <&- >&-; echo $? >&2", 0),
+             ("verify > /dev/full", f"{PY} -m fluxpart verify {W / 'cs'} > /dev/full; "
+              "echo $? >&2", 2)]
+    shutil.rmtree(W / "cs_csv", ignore_errors=True)
+    for label, command, want in cases:
+        done = _shell(command)
+        lines = done.stderr.strip().splitlines()
+        code = int(lines[-1]) if lines and lines[-1].isdigit() else None
+        tb = "Traceback" in done.stderr or "Exception ignored" in done.stderr
+        good = (code == want) if want is not None else code in (0, 1)
+        record(f"standard streams: {label}", good and not tb and not leftovers(W),
+               f"exit {code}, traceback {tb}, {lines[:-1][-1:]!r:.140}")
+    record("standard streams: the result of run | true verifies",
+           verify(W / "cs_run").returncode == 0, "")
+
+
+def _localedef(name, charmap, source):
+    loc = W / "locales"
+    loc.mkdir(exist_ok=True)
+    if not (loc / name).exists():
+        subprocess.run(["localedef", "-i", source, "-f", charmap, str(loc / name)],
+                       capture_output=True)
+    return loc
+
+
+def f_locales_non_ascii():
+    """A site named with letters beyond ASCII, its bundle and result on such paths, run
+    under ``LC_ALL=C`` (Python's UTF-8 mode), ``LC_ALL=C PYTHONUTF8=0`` (ASCII) and a
+    Latin-1 locale (de_DE.ISO-8859-1 from localedef); each result then verified and
+    reported under C.UTF-8: tables byte-identical to the UTF-8 run's."""
+    bundle = W / "Ørsted Mühle 草原"
+    shutil.rmtree(bundle, ignore_errors=True)
+    shutil.copytree(W / "b", bundle)
+    (bundle / "site.toml").write_text((W / "b" / "site.toml").read_text().replace(
+        "Quillmoor grassland (fictional)", "Quillmoor Ærø-Mühle 草原 (fictional)"))
+    loc = _localedef("de_DE.ISO-8859-1", "ISO-8859-1", "de_DE")
+    envs = {"C.UTF-8": dict(LC_ALL="C.UTF-8"), "LC_ALL=C": dict(LC_ALL="C"),
+            "LC_ALL=C PYTHONUTF8=0": dict(LC_ALL="C", PYTHONUTF8="0"),
+            "LC_ALL=de_DE.ISO-8859-1 (Latin-1)": dict(LC_ALL="de_DE.ISO-8859-1",
+                                                       LOCPATH=str(loc), PYTHONUTF8="0")}
+    base = None
+    for number, (label, extra) in enumerate(envs.items()):
+        out = bundle / f"Ergebnis ü {number}"
+        shutil.rmtree(out, ignore_errors=True)
+        done = fp("run", "site.toml", "--out", out, "--quiet", cwd=bundle,
+                  env=dict(ENV, **extra))
+        digests = table_digests(out) if out.exists() else None
+        base = base or digests
+        checked = verify(out, env=dict(ENV, LC_ALL="C.UTF-8"))
+        rep = fp("report", "--quiet", out, env=dict(ENV, LC_ALL="C.UTF-8"))
+        tb = "Traceback" in done.stderr + checked.stderr
+        record(f"a non-ASCII site and paths run under {label}, verified under C.UTF-8",
+               done.returncode == 0 and digests == base and checked.returncode == 0
+               and rep.returncode == 0 and not tb,
+               f"run {done.returncode} {errlines(done)[:1]!r:.120}, same tables "
+               f"{digests == base}, verify {checked.returncode} "
+               f"{(checked.stdout + checked.stderr).strip().splitlines()[-1:]!r:.160}, "
+               f"report {rep.returncode}")
+
+
+def f_report_locale_tz():
+    """``report`` and the CSV export under a decimal-comma locale (LANG and LC_NUMERIC
+    de_DE.UTF-8) and the farthest zones (UTC+14, UTC-12): page, figures and CSV
+    byte-identical to those under C.UTF-8."""
+    base = _report_base()
+    loc = _localedef("de_DE.UTF-8", "UTF-8", "de_DE")
+    base_csv = W / "rl_csv_base"
+    if not base_csv.exists():
+        fp("export", "--csv", base_csv, W / "r0")
+    for label, extra in (("LANG=de_DE.UTF-8 LC_NUMERIC=de_DE.UTF-8",
+                          dict(LANG="de_DE.UTF-8", LC_NUMERIC="de_DE.UTF-8",
+                               LOCPATH=str(loc))),
+                         ("TZ=Etc/GMT-14", dict(TZ="Etc/GMT-14")),
+                         ("TZ=Etc/GMT+12", dict(TZ="Etc/GMT+12"))):
+        env = dict(ENV, **extra)
+        env.pop("LC_ALL", None)
+        folder = fresh("rep_loc")
+        csv = W / "rl_csv"
+        shutil.rmtree(csv, ignore_errors=True)
+        rep = fp("report", "--quiet", folder, env=env)
+        exp = fp("export", "--csv", csv, W / "r0", env=env)
+        same_csv = csv.exists() and {p.name: p.read_bytes() for p in csv.iterdir()} == \
+            {p.name: p.read_bytes() for p in base_csv.iterdir()}
+        record(f"report and CSV export under {label}: byte-identical",
+               rep.returncode == 0 and exp.returncode == 0 and _same_report(folder, base)
+               and same_csv, f"exits {rep.returncode}/{exp.returncode}, report same "
+               f"{_same_report(folder, base)}, CSV same {same_csv}")
+
+
+def f_matplotlib_config():
+    """``report`` where matplotlib's configuration folder is a file, where a user's
+    matplotlibrc asks for LaTeX text, an interactive backend, SVG and 300 dpi, and with
+    ``HOME`` and the XDG folders missing: page and figures as under a clean setup, and
+    nothing on standard error but ``warning:`` lines."""
+    base = _report_base()
+    rc = W / "mplrc"
+    rc.mkdir(exist_ok=True)
+    (rc / "matplotlibrc").write_text("text.usetex: True\nbackend: TkAgg\nfigure.dpi: 300\n"
+                                     "savefig.format: svg\nfont.size: 22\n")
+    plain = W / "mpl_a_file"
+    plain.write_text("x\n")
+    for label, extra in (("MPLCONFIGDIR a regular file", dict(MPLCONFIGDIR=str(plain))),
+                         ("a matplotlibrc with usetex, TkAgg, SVG, 300 dpi",
+                          dict(MPLCONFIGDIR=str(rc))),
+                         ("HOME, XDG_CONFIG_HOME and XDG_CACHE_HOME missing",
+                          dict(HOME="/nonexistent", XDG_CONFIG_HOME="/nonexistent/c",
+                               XDG_CACHE_HOME="/nonexistent/k"))):
+        folder = fresh("mplc")
+        done = fp("report", "--quiet", folder, env=dict(ENV, **extra))
+        noise = [line for line in done.stderr.splitlines() if not line.startswith("warning:")]
+        record(f"report with {label}", done.returncode == 0 and not noise
+               and _same_report(folder, base), f"exit {done.returncode}, same "
+               f"{_same_report(folder, base)}, stderr {noise[:2]!r:.160}")
+
+
+def _full_tmpfs(name):
+    """A 64 kB tmpfs mounted at `name` in the scratch folder and filled to 60 kB; the path
+    and whether the mount was allowed."""
+    full = W / name
+    full.mkdir(exist_ok=True)
+    mounted = _mounted(full, "-t", "tmpfs", "-o", "size=64k", "tmpfs")
+    if mounted:
+        (full / "filler").write_bytes(b"\0" * (60 << 10))
+    return full, mounted
+
+
+def f_tmpdir_odd():
+    """``TMPDIR`` a dangling link, and on a full 64 kB tmpfs, under run, report, verify,
+    export --netcdf: each completes or stops with one line; nothing left."""
+    full, mounted = _full_tmpfs("tmpfull")
+    try:
+        for label, tmp in (("a dangling link", linked("tmpdangl", W / "tmp_nowhere")),
+                           ("a full 64 kB tmpfs", full)):
+            if tmp == full and not mounted:
+                record("TMPDIR on a full tmpfs", False, "mount refused: not probed")
+                continue
+            env = dict(ENV, TMPDIR=str(tmp))
+            folder = fresh("tmpd")
+            out = W / "tmpd_run"
+            shutil.rmtree(out, ignore_errors=True)
+            (W / "tmpd.nc").unlink(missing_ok=True)
+            steps = [fp("run", "site.toml", "--out", out, "--quiet", env=env),
+                     fp("report", "--quiet", folder, env=env),
+                     fp("verify", "--quiet", folder, env=env),
+                     fp("export", "--netcdf", W / "tmpd.nc", folder, env=env)]
+            fine = [s.returncode == 0 or one_line(s) for s in steps]
+            record(f"TMPDIR {label} under run, report, verify, export --netcdf",
+                   all(fine) and not leftovers(W) and not leftovers(folder)
+                   and verify(folder).returncode == 0,
+                   f"exits {[s.returncode for s in steps]}, "
+                   f"{[e for s in steps for e in errlines(s)][:1]!r:.160}")
+    finally:
+        if mounted:
+            subprocess.run(["umount", str(full)])
+
+
+def f_umasks():
+    """``umask 077`` and ``umask 777`` (as root, who still reads a mode-000 file) under
+    run: the result's modes follow the mask, the tables are byte-identical and verify."""
+    seen = []
+    for mask in (0o077, 0o777):
+        out = W / f"umask{mask:o}"
+        shutil.rmtree(out, ignore_errors=True)
+        done = subprocess.run([PY, "-m", "fluxpart", "run", "site.toml", "--out", str(out),
+                               "--quiet"], env=ENV, cwd=W / "b", capture_output=True,
+                              text=True, preexec_fn=lambda m=mask: os.umask(m))
+        modes = sorted({oct(p.stat().st_mode & 0o777) for p in out.glob("*.parquet")}) \
+            if out.exists() else []
+        fine = (done.returncode == 0 and table_digests(out) == table_digests(W / "r0")
+                and verify(out).returncode == 0 and modes == [oct(0o666 & ~mask)]) or \
+            (one_line(done) and not out.exists())
+        seen.append((oct(mask), done.returncode, modes, fine, done.stderr.strip()[-80:]))
+        os.chmod(out, 0o755) if out.exists() else None
+    record("run under umask 077 and 777", all(s[3] for s in seen) and not leftovers(W),
+           f"{seen}")
+
+
+def f_long_paths():
+    """A result 300 characters deep (run, verify, report, export) and one beyond the
+    system's PATH_MAX (4096 bytes, limits.h (m)): written, or one line."""
+    deep = W
+    for number in range(3):
+        deep = deep / (f"d{number}" + "x" * 95)
+    deep.mkdir(parents=True, exist_ok=True)
+    out = deep / "out"
+    shutil.rmtree(out, ignore_errors=True)
+    steps = [fp("run", "site.toml", "--out", out, "--quiet"), verify(out),
+             fp("report", "--quiet", out), fp("export", "--csv", deep / "csv", out)]
+    record(f"a result folder {len(str(out))} characters deep",
+           all(s.returncode == 0 for s in steps) and table_digests(out) ==
+           table_digests(W / "r0"), f"exits {[s.returncode for s in steps]}")
+    far = W / "far"
+    shutil.rmtree(far, ignore_errors=True)
+    path = far
+    while len(str(path)) < 4200:
+        path = path / ("y" * 200)
+    done = fp("run", "site.toml", "--out", path, "--quiet")
+    record(f"a result folder {len(str(path))} bytes deep (beyond PATH_MAX)",
+           one_line(done) and not leftovers(W), f"exit {done.returncode}, "
+           f"{_stderr_tail(done, 160)}")
+    shutil.rmtree(far, ignore_errors=True)
+
+
+def f_logger_appending():
+    """A logger appending a record every 2 ms to the input while run reads it."""
+    import threading
+    bundle = _bundle("grow")
+    out = W / "grow_out"
+    shutil.rmtree(out, ignore_errors=True)
+    last = (bundle / "tower.csv").read_bytes().splitlines(keepends=True)[-1]
+    stop = threading.Event()
+
+    def append():
+        while not stop.is_set():
+            with open(bundle / "tower.csv", "ab") as handle:
+                handle.write(last)
+            time.sleep(0.002)
+    writer = threading.Thread(target=append)
+    writer.start()
+    try:
+        done = fp("run", "site.toml", "--out", out, "--quiet", cwd=bundle)
+    finally:
+        stop.set()
+        writer.join()
+    record("a logger appending to the input while run reads it",
+           (one_line(done) and "tower.csv" in done.stderr and not out.exists())
+           or (done.returncode == 0 and verify(out).returncode in (0, 1)), f"exit "
+           f"{done.returncode}, {_stderr_tail(done, 170)}, left {leftovers(W)}")
+
+
+def f_input_replaced_after_check():
+    """``check`` passes, then a value of the input is edited, then ``run``: the result is
+    the edited file's, recorded by its hash; verify passes."""
+    bundle = _bundle("chk")
+    out = W / "chk_out"
+    shutil.rmtree(out, ignore_errors=True)
+    first = fp("check", "site.toml", cwd=bundle)
+    lines = (bundle / "tower.csv").read_text().splitlines(keepends=True)
+    row = lines[300].split(",")
+    row[1] = "-3.25" if row[1] != "-3.25" else "-3.5"
+    lines[300] = ",".join(row)
+    (bundle / "tower.csv").write_text("".join(lines))
+    done = fp("run", "site.toml", "--out", out, "--quiet", cwd=bundle)
+    import json
+    recorded = json.loads((out / "manifest.json").read_text())["provenance"]["input"] \
+        if out.exists() else {}
+    digest = hashlib.sha256((bundle / "tower.csv").read_bytes()).hexdigest()
+    record("the input edited between check and run", first.returncode in (0, 1)
+           and done.returncode == 0 and digest in json.dumps(recorded)
+           and verify(out).returncode == 0, f"check {first.returncode}, run "
+           f"{done.returncode}, the edited file's hash recorded {digest in json.dumps(recorded)}")
+
+
+_CLOCK = """
+import time
+_offset = {when} - time.time()
+_real, _real_ns = time.time, time.time_ns
+time.time = lambda: _real() + _offset
+time.time_ns = lambda: _real_ns() + int(_offset * 1e9)
+"""
+
+
+def f_clock_far():
+    """The machine's clock at 1970-01-01 and at 2099-12-31 (``time.time`` patched through
+    a ``sitecustomize`` in the child; faketime is not installed): run, verify, report,
+    export; tables byte-identical, nothing left."""
+    for label, when in (("1970-01-01", 3600), ("2099-12-31", 4102358400)):
+        site = W / f"clock{when}"
+        site.mkdir(exist_ok=True)
+        (site / "sitecustomize.py").write_text(_CLOCK.format(when=when))
+        env = dict(ENV, PYTHONPATH=f"{site}{os.pathsep}{TREE}")
+        folder = fresh("clk")
+        out = W / "clk_new"
+        shutil.rmtree(out, ignore_errors=True)
+        shutil.rmtree(W / "clk_csv", ignore_errors=True)
+        steps = [fp("run", "seed1.toml", "--out", folder, "--quiet", env=env),
+                 fp("run", "site.toml", "--out", out, "--quiet", env=env),
+                 verify(out, env=env), fp("report", "--quiet", out, env=env),
+                 fp("export", "--csv", W / "clk_csv", out, env=env), verify(out)]
+        record(f"the clock at {label} under run, verify, report, export",
+               all(s.returncode == 0 for s in steps) and table_digests(out) ==
+               table_digests(W / "r0") and table_digests(folder) == table_digests(W / "r1")
+               and not leftovers(W), f"exits {[s.returncode for s in steps]}, "
+               f"{[e for s in steps for e in errlines(s)][:1]!r:.150}")
+
+
+def f_cpu_limit():
+    """``nice -n 19`` and a CPU-time limit of 2 s (soft; hard 30 s) under run replacing a
+    result: one line (SIGXCPU, exit 152), the earlier result whole, nothing left."""
+    import resource
+    folder = fresh("cpu")
+    before = table_digests(folder)
+
+    def limit():
+        os.nice(19)
+        resource.setrlimit(resource.RLIMIT_CPU, (2, 30))
+    done = subprocess.run([PY, "-m", "fluxpart", "run", "seed1.toml", "--out", str(folder),
+                           "--quiet"], env=ENV, cwd=W / "b", capture_output=True, text=True,
+                          preexec_fn=limit, timeout=300)
+    record("nice 19 and ulimit -t 2 (soft) during run", (one_line(done, 152)
+           and _intact(folder, before)) or (done.returncode == 0 and table_digests(folder)
+                                            == table_digests(W / "r1"))
+           and not leftovers(W), f"exit {done.returncode}, {_stderr_tail(done, 160)}")
+
+
+def f_open_files_readers():
+    """``ulimit -n 16`` under check, verify, report, export (CSV and NetCDF) and diff."""
+    import resource
+    folder = fresh("nof")
+    shutil.rmtree(W / "nof_csv", ignore_errors=True)
+    (W / "nof.nc").unlink(missing_ok=True)
+    seen = []
+    for args in (["check", "site.toml"], ["verify", "--quiet", folder],
+                 ["report", "--quiet", folder], ["export", "--csv", W / "nof_csv", folder],
+                 ["export", "--netcdf", W / "nof.nc", folder], ["diff", folder, W / "r1"]):
+        done = limited({resource.RLIMIT_NOFILE: 16}, *args)
+        seen.append((args[0], done.returncode, done.returncode in (0, 1) and
+                     "Traceback" not in done.stderr or one_line(done)))
+    record("ulimit -n 16 under check, verify, report, export, diff",
+           all(s[2] for s in seen) and not leftovers(W) and not leftovers(folder), f"{seen}")
+
+
+def f_data_limit():
+    """A data-segment limit (``ulimit -d``, RLIMIT_DATA: since Linux 4.7 every private
+    writable mapping counts) under run, verify, report and export --netcdf, and an
+    address-space limit under export --netcdf."""
+    import resource
+    for command, sizes in (("run", (60, 100, 130, 150, 170, 200, 250)),
+                           ("verify", (60, 100, 150, 200)), ("report", (60, 100, 150, 200)),
+                           ("export", (150, 200, 235, 250))):
+        seen = _limit_sweep(resource.RLIMIT_DATA, command, sizes, "seed1.toml", "dseg")
+        record(f"a data-segment limit (ulimit -d {sizes[0]} .. {sizes[-1]} MB) during "
+               f"{command}", all(s[2] for s in seen) and not leftovers(W), f"{seen}")
+    seen = _limit_sweep(resource.RLIMIT_AS, "export", (450, 550, 650), "seed1.toml", "dseg")
+    record("a memory limit (ulimit -v 450 .. 650 MB) during export --netcdf",
+           all(s[2] for s in seen) and not leftovers(W), f"{seen}")
+    seen = []
+    for megabytes in (60, 70, 150):
+        done = _limited_or_hung({resource.RLIMIT_DATA: megabytes << 20}, "check", "site.toml")
+        seen.append((megabytes, done.returncode, done.returncode in (0, 1)
+                     or (done.returncode == 2 and len(errlines(done)) == 1)))
+    record("ulimit -d 60 .. 150 MB during check", all(s[2] for s in seen), f"{seen}")
+    make_net()
+    done = limited({resource.RLIMIT_DATA: 200 << 20}, "batch", "sites.toml", "--quiet",
+                   "--workers", "1", cwd=NET, timeout=600)
+    said = [line for line in done.stderr.splitlines() if not line.startswith("warning:")
+            and line.strip()]
+    record("a Dask batch under ulimit -d 200 MB: one line per failed site",
+           done.returncode in (0, 1) and "Traceback" not in done.stderr
+           and all(line.startswith("error:") for line in said), f"exit {done.returncode}, "
+           f"{len(said)} lines, {said[:1]!r:.160}")
+
+
+def f_signal_dispositions():
+    """Signals as a caller leaves them: run under ``nohup`` (SIGHUP ignored) sent SIGHUP
+    as it writes (completes), a batch with SIGCHLD ignored (a daemon's child), SIGTSTP
+    then SIGCONT and SIGWINCH during run (completes, identical)."""
+    folder = fresh("nohup")
+    proc = subprocess.Popen([PY, "-m", "fluxpart", "run", "seed1.toml", "--out", str(folder),
+                             "--quiet"], env=ENV, cwd=W / "b", stdout=subprocess.PIPE,
+                            stderr=subprocess.PIPE, text=True,
+                            preexec_fn=lambda: signal.signal(signal.SIGHUP, signal.SIG_IGN))
+    deadline = time.time() + 120
+    while proc.poll() is None and time.time() < deadline and not _entries(W, ".nohup.staging-"):
+        time.sleep(0.005)
+    proc.send_signal(signal.SIGHUP)
+    _, err = proc.communicate(timeout=120)
+    record("run under nohup (SIGHUP ignored) sent SIGHUP while it writes",
+           proc.returncode == 0 and table_digests(folder) == table_digests(W / "r1"),
+           f"exit {proc.returncode}, {err.strip()[-120:]!r}")
+    out = W / "tstp"
+    shutil.rmtree(out, ignore_errors=True)
+    proc = start("run", "site.toml", "--out", out, "--quiet")
+    for signum in (signal.SIGTSTP, signal.SIGCONT, signal.SIGWINCH, signal.SIGSTOP,
+                   signal.SIGCONT):
+        time.sleep(0.4)
+        if proc.poll() is None:
+            proc.send_signal(signum)
+    _, err = proc.communicate(timeout=120)
+    record("SIGTSTP, SIGCONT, SIGWINCH, SIGSTOP, SIGCONT during run",
+           proc.returncode == 0 and table_digests(out) == table_digests(W / "r0"),
+           f"exit {proc.returncode}, {err.strip()[-120:]!r}")
+    make_net()
+    done = subprocess.run([PY, "-m", "fluxpart", "batch", "sites.toml", "--quiet",
+                           "--workers", "2"], env=ENV, cwd=NET, capture_output=True,
+                          text=True, timeout=600,
+                          preexec_fn=lambda: signal.signal(signal.SIGCHLD, signal.SIG_IGN))
+    codes = sites_verify(NET / "out") if (NET / "out").exists() else []
+    record("a Dask batch started with SIGCHLD ignored", (done.returncode == 0 and
+           codes == [0] * 4) or one_line(done), f"exit {done.returncode}, "
+           f"{_stderr_tail(done, 160)}, verify {codes}")
+
+
+def f_sigquit():
+    """SIGQUIT (Ctrl-\\, a request for a core dump: not handled, by design) at 0.5 to
+    1.5 s of a run replacing a result: the earlier or the new result whole, never a mix;
+    the next run leaves nothing behind."""
+    seen = []
+    for offset in (0.5, 0.8, 1.1, 1.5):
+        folder = fresh("quit")
+        before = table_digests(folder)
+        # its default action back (a shell's background job inherits it ignored)
+        proc = subprocess.Popen(
+            [PY, "-m", "fluxpart", "run", "seed1.toml", "--out", str(folder), "--quiet"],
+            env=ENV, cwd=W / "b", stdout=subprocess.PIPE, stderr=subprocess.PIPE,
+            preexec_fn=lambda: signal.signal(signal.SIGQUIT, signal.SIG_DFL))
+        time.sleep(offset)
+        proc.send_signal(signal.SIGQUIT)
+        proc.communicate(timeout=120)
+        whole = _intact(folder, before) or (table_digests(folder) == table_digests(W / "r1")
+                                            and verify(folder).returncode == 0)
+        again = fp("run", "site.toml", "--out", folder, "--quiet")
+        seen.append((offset, proc.returncode, whole, again.returncode, leftovers(W)))
+    record("SIGQUIT (Ctrl-\\) at 0.5-1.5 s of run, then run again",
+           all(s[2] and s[3] == 0 and not s[4] for s in seen), f"{seen}")
+
+
+def f_verify_saved_inside():
+    """An auditor saving verify's report inside the result (``verify out >
+    out/verify.txt``): the file is named as not the result's."""
+    folder = fresh("vin")
+    done = _shell(f"{PY} -m fluxpart verify {folder} > {folder / 'verify.txt'}; echo $? >&2")
+    text = (folder / "verify.txt").read_text()
+    code = done.stderr.strip().splitlines()[-1]
+    record("verify's report saved inside the result folder (> out/verify.txt)",
+           "verify.txt" in text and "Traceback" not in done.stderr,
+           f"exit {code}, names verify.txt {'verify.txt' in text}")
+
+
+def f_deleted_cwd():
+    """run, verify and a Dask batch from a folder deleted while the shell was in it:
+    absolute paths work, a relative one is one line naming the gone folder."""
+    gone = W / "gone"
+    gone.mkdir(exist_ok=True)
+    out = W / "gone_out"
+    shutil.rmtree(out, ignore_errors=True)
+    make_net()
+    cmd = (f"cd {gone} && rm -rf {gone} && {PY} -m fluxpart run {W / 'b' / 'site.toml'} "
+           f"--out {out} --quiet; echo $? >&2; {PY} -m fluxpart verify --quiet {out}; "
+           f"echo $? >&2; {PY} -m fluxpart batch {NET / 'sites.toml'} --quiet; echo $? >&2; "
+           f"{PY} -m fluxpart run site.toml --out rel --quiet; echo $? >&2")
+    done = _shell(cmd, cwd=W)
+    lines = [line for line in done.stderr.strip().splitlines() if not
+             line.startswith("warning:") and line.strip()]
+    codes = [line for line in lines if line.isdigit()]
+    said = [line for line in lines if line.startswith("error:")]
+    record("run, verify and batch from a deleted current folder (absolute paths), then a "
+           "relative one", codes == ["0", "0", "0", "2"] and len(said) == 1
+           and "no longer exists" in said[0] and table_digests(out) == table_digests(W / "r0")
+           and sites_verify(NET / "out") == [0] * 4, f"exits {codes}, {said!r:.200}")
+
+
+def f_two_csv_exports():
+    """Two CSV exports of two results into one folder at once: one whole export."""
+    target = W / "csv2"
+    shutil.rmtree(target, ignore_errors=True)
+    procs = [start("export", "--csv", target, W / source) for source in ("r0", "r1")]
+    done = [p.communicate(timeout=120) for p in procs]
+    codes = [p.returncode for p in procs]
+    one = [W / "csv2_a", W / "csv2_b"]
+    for path, source in zip(one, ("r0", "r1"), strict=True):
+        shutil.rmtree(path, ignore_errors=True)
+        fp("export", "--csv", path, W / source)
+    got = {p.name: p.read_bytes() for p in target.iterdir()} if target.exists() else {}
+    whole = any(got == {p.name: p.read_bytes() for p in o.iterdir()} for o in one)
+    record("two CSV exports into one folder at once", whole and 0 in codes
+           and all(c == 0 or c == 2 for c in codes) and not leftovers(W),
+           f"exits {codes}, one export whole {whole}, {[d[1][-80:] for d in done]}")
+
+
+def f_no_locks():
+    """A file system that gives no locks (flock raising ENOLCK, an NFS mount without its
+    lock service): one line naming the locks, not a permission."""
+    import errno
+    folder = fresh("nolock")
+    before = table_digests(folder)
+    script = ("import errno, fcntl, sys\n"
+              "def flock(fd, op):\n"
+              "    raise OSError(errno.ENOLCK, 'No locks available')\n"
+              "fcntl.flock = flock\n"
+              "import fluxpart.cli as cli\nsys.exit(cli.main(sys.argv[1:]))\n")
+    done = subprocess.run([PY, "-c", script, "run", "seed1.toml", "--out", str(folder),
+                           "--quiet"], env=ENV, cwd=W / "b", capture_output=True, text=True)
+    record("no file locks on the output's file system (ENOLCK)", one_line(done)
+           and "writable" not in done.stderr and "lock" in done.stderr
+           and _intact(folder, before), f"exit {done.returncode}, {_stderr_tail(done, 190)}"
+           f" ({os.strerror(errno.ENOLCK)})")
+
+
+def f_blas_kernel():
+    """OpenBLAS forced to another CPU kernel (``OPENBLAS_CORETYPE=Prescott``) and NumPy's
+    SIMD dispatch cut back (``NPY_DISABLE_CPU_FEATURES``): run, then verify under the
+    machine's own settings: bit-identical, or within rounding with the platform named."""
+    for label, extra in (("OPENBLAS_CORETYPE=Prescott", dict(OPENBLAS_CORETYPE="Prescott")),
+                         ("NPY_DISABLE_CPU_FEATURES=AVX2 FMA3 AVX512F ...",
+                          dict(NPY_DISABLE_CPU_FEATURES="AVX512F AVX512CD AVX512_SKX AVX2 "
+                                                        "FMA3 F16C"))):
+        out = W / "kern"
+        shutil.rmtree(out, ignore_errors=True)
+        done = fp("run", "site.toml", "--out", out, "--quiet", env=dict(ENV, **extra))
+        checked = fp("verify", out)
+        first = checked.stdout.splitlines()[0] if checked.stdout else ""
+        same = table_digests(out) == table_digests(W / "r0")
+        record(f"run under {label}, verified under the machine's defaults", done.returncode
+               == 0 and checked.returncode == 0 and (same or "platform differs" in first),
+               f"run {done.returncode}, identical {same}, verify {checked.returncode} "
+               f"{first[:110]!r}")
+
+
+def f_batch_scratch():
+    """A Dask batch whose ``TMPDIR`` (where Dask's workers keep their scratch space) is a
+    full 64 kB tmpfs, and one with ``HOME`` missing (Dask's configuration folder):
+    completes, or one line; every site written verifies."""
+    full, mounted = _full_tmpfs("btmp")
+    try:
+        for label, extra in (("TMPDIR a full tmpfs", dict(TMPDIR=str(full))),
+                             ("HOME missing", dict(HOME="/nonexistent",
+                                                   XDG_CONFIG_HOME="/nonexistent/c"))):
+            if "TMPDIR" in extra and not mounted:
+                record(f"a Dask batch with {label}", False, "mount refused: not probed")
+                continue
+            make_net()
+            done = fp("batch", "sites.toml", "--quiet", "--workers", "2", cwd=NET,
+                      env=dict(ENV, **extra), timeout=600)
+            codes = sites_verify(NET / "out") if (NET / "out").exists() else []
+            record(f"a Dask batch with {label}", ((done.returncode == 0 and codes == [0] * 4)
+                   or one_line(done)) and all(c == 0 for c in codes)
+                   and "Traceback" not in done.stderr,
+                   f"exit {done.returncode}, {_stderr_tail(done, 160)}, verify {codes}")
+    finally:
+        if mounted:
+            subprocess.run(["umount", str(full)])
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -1340,7 +1976,14 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           # round faults37
           f_path_control_characters, f_report_memory_line, f_run_quiet_promise,
           f_stop_netcdf_and_report, f_table_of_other_run_why,
-          f_diff_older_release, f_input_unmounted_lazily]
+          f_diff_older_release, f_input_unmounted_lazily,
+          # round faults38
+          f_run_while_verify, f_out_odd_parents, f_closed_streams, f_locales_non_ascii,
+          f_report_locale_tz, f_matplotlib_config, f_tmpdir_odd, f_umasks, f_long_paths,
+          f_logger_appending, f_input_replaced_after_check, f_clock_far, f_cpu_limit,
+          f_open_files_readers, f_data_limit, f_signal_dispositions, f_sigquit,
+          f_verify_saved_inside, f_deleted_cwd, f_two_csv_exports, f_no_locks,
+          f_blas_kernel, f_batch_scratch]
 
 if __name__ == "__main__":
     wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
