@@ -213,3 +213,11 @@ def test_a_zip_of_one_table_and_its_documents_is_the_table(tmp_path):
                                 ("README.txt", "two halves\n")])
     with pytest.raises(InputFileError, match=r"zip archive holding 3 file\(s\)"):
         _read(tmp_path / "two.zip")
+    # a read-me without its table is no table (review55: it was read as the table and
+    # refused for a missing time column, its one line a header)
+    _zip(tmp_path / "doc.zip", [("README.txt", "-9999 is missing\n"), ("LICENSE", "CC BY\n")])
+    with pytest.raises(InputFileError, match=r"documents only \('README.txt', 'LICENSE'"):
+        _read(tmp_path / "doc.zip")
+    _zip(tmp_path / "one.zip", [("README.txt", "-9999 is missing\n")])
+    with pytest.raises(InputFileError, match=r"documents only \('README.txt': .*no table"):
+        _read(tmp_path / "one.zip")
