@@ -223,10 +223,18 @@ _DOCUMENT_STEMS = ("readme", "read_me", "read-me", "license", "licence", "citati
 _DOCUMENT_EXTENSIONS = (".pdf", ".md", ".html", ".htm", ".rtf", ".doc", ".docx", ".odt")
 
 
-def _document(name: str) -> bool:
-    """True where an archive member's name is a document's, not a table's."""
+#: Of those, the extensions no table is written in: a web page (.html, .htm) or a
+#: Markdown file may be a portal's table, which the reader names as such (review55).
+_TEXT_DOCUMENT_EXTENSIONS = (".md", ".html", ".htm")
+
+
+def _document(name: str, *, surely: bool = False) -> bool:
+    """True where an archive member's name is a document's, not a table's; `surely`:
+    by its stem or a format no table is written in (not .html, .htm or .md)."""
     base = name.rsplit("/", 1)[-1].lower()
-    return base.startswith(_DOCUMENT_STEMS) or base.endswith(_DOCUMENT_EXTENSIONS)
+    extensions = tuple(extension for extension in _DOCUMENT_EXTENSIONS
+                       if not surely or extension not in _TEXT_DOCUMENT_EXTENSIONS)
+    return base.startswith(_DOCUMENT_STEMS) or base.endswith(extensions)
 
 
 def single_zip_member(data: bytes) -> bytes | None:
@@ -249,7 +257,7 @@ def single_zip_member(data: bytes) -> bytes | None:
             tables = [info for info in files if not _document(info.filename)]
             if len(tables) == 1:
                 files = tables
-            elif not tables:
+            elif files and all(_document(info.filename, surely=True) for info in files):
                 # documents only (a portal's read-me without its table): no table to read,
                 # refused by refuse_binary (review55: the read-me was read as the table)
                 return None
@@ -288,7 +296,7 @@ def refuse_binary(data: bytes, path) -> None:
             inner = (f"; {archives[0]!r} is itself an archive: unpack it too" if archives
                      else f" ({compressed[0]!r} is read as it is, compressed)" if compressed
                      else "")
-            if members and not [name for name in members if not _document(name)]:
+            if members and all(_document(name, surely=True) for name in members):
                 # a read-me, a licence, a PDF and no table (review55)
                 raise InputFileError(
                     f"[input] path: {str(path)!r} is a zip archive holding documents only "

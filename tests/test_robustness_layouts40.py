@@ -221,3 +221,8 @@ def test_a_zip_of_one_table_and_its_documents_is_the_table(tmp_path):
     _zip(tmp_path / "one.zip", [("README.txt", "-9999 is missing\n")])
     with pytest.raises(InputFileError, match=r"documents only \('README.txt': .*no table"):
         _read(tmp_path / "one.zip")
+    # a web page alone may be a portal's table: read, and named by the reader as HTML
+    _zip(tmp_path / "page.zip", [("fluxes.html", "<html><table><tr><td>1</td></tr></table>\n")])
+    with pytest.raises(InputFileError) as caught:
+        _read(tmp_path / "page.zip")
+    assert "documents only" not in str(caught.value) and "HTML" in str(caught.value)
