@@ -12,6 +12,7 @@ invented known truth: the records as written, compared value for value and stamp
 stamp.
 """
 
+import re
 import zipfile
 
 import numpy as np
@@ -185,6 +186,11 @@ def test_whitespace_names_with_bracketed_units_are_one_name_a_field(tmp_path):
     assert len(read) == len(ends)
     assert any("'co2 [umol m-2 s-1]'" in w and "outside their bracketed units" in w
                for w in report.warnings)
+    # whole names, four at most (review55: cut at 160 characters, mid-name)
+    said = next(w for w in report.warnings if "outside their bracketed units" in w)
+    shown = said.split("bracketed units (", 1)[1]
+    assert re.findall(r"'([^']*)'", shown) == [name for name in names if " " in name][:4]
+    assert said.endswith(" and 1 more), one a field")
     # a header whose words fit no field count stays refused, naming the mismatch
     path.write_text("\n".join(["  ".join(names) + " spare [V]"] + body) + "\n")
     with pytest.raises(InputFileError, match=r"where the header has"):
