@@ -240,10 +240,18 @@ _DOCUMENT_STEMS = ("readme", "read_me", "read-me", "license", "licence", "citati
 _DOCUMENT_EXTENSIONS = (".pdf", ".md", ".html", ".htm", ".rtf", ".doc", ".docx", ".odt")
 
 
-def _document(name: str) -> bool:
-    """True where an archive member's name is a document's, not a table's."""
+#: Of those, the extensions no table is written in: a web page (.html, .htm) or a
+#: Markdown file may be a portal's table, which the reader names as such (review55).
+_TEXT_DOCUMENT_EXTENSIONS = (".md", ".html", ".htm")
+
+
+def _document(name: str, *, surely: bool = False) -> bool:
+    """True where an archive member's name is a document's, not a table's; `surely`:
+    by its stem or a format no table is written in (not .html, .htm or .md)."""
     base = name.rsplit("/", 1)[-1].lower()
-    return base.startswith(_DOCUMENT_STEMS) or base.endswith(_DOCUMENT_EXTENSIONS)
+    extensions = tuple(extension for extension in _DOCUMENT_EXTENSIONS
+                       if not surely or extension not in _TEXT_DOCUMENT_EXTENSIONS)
+    return base.startswith(_DOCUMENT_STEMS) or base.endswith(extensions)
 
 
 def single_zip_member(data: bytes) -> bytes | None:
@@ -254,7 +262,8 @@ def single_zip_member(data: bytes) -> bytes | None:
     A zip of one text table is the table, as a gzip file is (layouts36; refused before
     with "unpack it"); a zip of several files is refused by :func:`refuse_binary`,
     naming them. Documents beside one other file (a portal's "README.txt", "LICENSE",
-    a PDF) are no table and are not counted (layouts40).
+    a PDF) are no table and are not counted (layouts40); a zip of documents only is
+    refused by :func:`refuse_binary` as holding no table (review55).
     """
     import io
     import zipfile
@@ -265,6 +274,10 @@ def single_zip_member(data: bytes) -> bytes | None:
             tables = [info for info in files if not _document(info.filename)]
             if len(tables) == 1:
                 files = tables
+            elif files and all(_document(info.filename, surely=True) for info in files):
+                # documents only (a portal's read-me without its table): no table to read,
+                # refused by refuse_binary (review55: the read-me was read as the table)
+                return None
             if len(files) != 1 or files[0].filename in ("[Content_Types].xml", "mimetype") \
                     or files[0].filename.lower().endswith((".zip", ".7z", ".tar", ".tgz")):
                 return None
@@ -300,6 +313,13 @@ def refuse_binary(data: bytes, path) -> None:
             inner = (f"; {archives[0]!r} is itself an archive: unpack it too" if archives
                      else f" ({compressed[0]!r} is read as it is, compressed)" if compressed
                      else "")
+            if members and all(_document(name, surely=True) for name in members):
+                # a read-me, a licence, a PDF and no table (review55)
+                raise InputFileError(
+                    f"[input] path: {str(path)!r} is a zip archive holding documents only "
+                    f"({shown}{more}: a read-me, a licence or a PDF by their names), no table "
+                    "of records; point [input] path at the data file, or at a zip that "
+                    "holds it")
             raise InputFileError(f"[input] path: {str(path)!r} is a zip archive holding "
                                  f"{len(members)} file(s) ({shown}{more}), not a text table; "
                                  f"unpack it{inner} and point [input] path at the text "

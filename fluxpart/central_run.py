@@ -99,9 +99,13 @@ def averaged_shape(frame, screened, filled_drivers, central, is_night, temperatu
 
     Returns
     -------
-    fluxpart.partition.light_shape.ShapeAverage or None
+    shape : fluxpart.partition.light_shape.ShapeAverage or None
         None with another setting, or where a method failed or the profiled fit
         cannot be made (the daytime fluxes then stay rectangular, without the part).
+    note : str
+        Where the setting asked for the average and the profiled fit could not be made:
+        a warning saying so and why (review55: the run fell back to the rectangular
+        shape without a word); '' otherwise.
 
     References
     ----------
@@ -110,14 +114,14 @@ def averaged_shape(frame, screened, filled_drivers, central, is_night, temperatu
     _, nee_measured, _, night, day = central
     if (config.daytime_curvature != light_shape.AVERAGE or method_failure.failed(day)
             or method_failure.failed(night)):
-        return None
+        return None, ""
     try:
         profiled = fit_daytime(frame, nee_measured, screened, filled_drivers,
                                respiration_temperature(filled_drivers, temperature, delay, True),
                                is_night, config, "fit", night)
-    except FluxpartError:
-        return None
-    return light_shape.average_shapes(day, profiled)
+    except FluxpartError as error:
+        return None, light_shape.not_averaged(error)
+    return light_shape.average_shapes(day, profiled), ""
 
 
 def shifted(night, shift):
@@ -292,8 +296,8 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
     # the daytime method's two light-response shapes, profiled once on the central run;
     # the same per-record shift in every u* run, as the respiration form's
     rectangular = outcomes["central"]
-    shape = averaged_shape(frame, screened, filled_drivers, rectangular, is_night,
-                           temperature, delay, config)
+    shape, shape_note = averaged_shape(frame, screened, filled_drivers, rectangular,
+                                       is_night, temperature, delay, config)
     if shape is not None:
         outcomes = {name: outcome._replace(day=shape.shifted(outcome.day))
                     if not method_failure.failed(outcome.day) else outcome
@@ -301,6 +305,8 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
     _, _, filled, night, day = outcomes["central"]
     warnings = list(gapfill.crossed_event_notes(frame.index, config.events,
                                                 filled.attrs.pop("events_crossed", [])))
+    if shape_note:
+        warnings.append(shape_note)
     if config.events:
         warnings.extend(pieces.window_notes(frame.index, gapfill.event_breaks(
             frame.index, config.events), night.rref_windows, day.parameters))

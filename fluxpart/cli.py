@@ -60,10 +60,14 @@ def _format_annual(annual) -> str:
 
     table = uncertainty_parts(annual)
     if table is not None:
+        # the light shape's column, written with daytime_curvature = average only, named
+        # as the other columns whose heading is no plain word (review55)
+        shape = ("; light shape: the daytime light response rectangular or with its "
+                 "curvature profiled" if "light shape" in table.columns else "")
         lines += ["", "Uncertainty [g C m-2]: parts and total as 1 sigma (root sum of squares), "
                   "and the stated 95 % interval (temperature: the choice of respiration "
-                  "temperature; form: Lloyd–Taylor or a constant Q10); systematic measurement "
-                  "errors not included (see the README's cautions):",
+                  f"temperature; form: Lloyd–Taylor or a constant Q10{shape}); systematic "
+                  "measurement errors not included (see the README's cautions):",
                   table.to_string(float_format=lambda v: f"{v:9.1f}", na_rep="        -")]
     if "net_uptake_t_co2_per_ha" in annual.columns:
         from .units import T_CO2_HA_PER_G_C_M2

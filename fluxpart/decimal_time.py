@@ -6,7 +6,7 @@ Some loggers and archives write the time of day as a decimal hour beside a date 
 field is ``%H`` (or ``%j``) such a field is rewritten here as the clock it states
 (``14:30:00``, ``064 14:30:00``) and the format as ``%H:%M:%S`` (``%j %H:%M:%S``), which
 the reader parses on. ``%j`` counts from 001 (1 January, 00:00 to 24:00), so 64.60417 is
-the 64th day and 0.60417 of it: a column counting from 0.0 reads one day late, and its
+the 64th day and 0.60417 of it: a column counting from 0.0 reads one day early, and its
 values below 1 (1 January) are refused by the reader as a day of the year 0.
 
 A decimal number is only as precise as its last digit: 14.17 h is 14:10 or 14:10:12 or

@@ -2782,10 +2782,13 @@ def _bracketed_unit_names(path: Path, text: str, rows_before_header: int,
     if names is None:
         return text
     if warnings is not None:
+        # whole names, four at most (review55: cut at 160 characters, a name was cut too)
+        joined = [name for name in names if " " in name]
+        more = f" and {len(joined) - 4} more" if len(joined) > 4 else ""
         warnings.append(
             f"input file {str(path)!r}: the header (line {at + 1}) read as {len(names)} "
-            "names split at the blanks outside their bracketed units (" + ", ".join(
-                repr(name) for name in names if " " in name)[:160] + "), one a field")
+            "names split at the blanks outside their bracketed units ("
+            + ", ".join(repr(name) for name in joined[:4]) + f"{more}), one a field")
     ending = text_lines[at][len(text_lines[at].rstrip("\r\n")):]
     text_lines[at] = bracket_names.placeholder_line(names) + ending
     return "".join(text_lines)

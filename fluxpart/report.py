@@ -126,6 +126,8 @@ _REFERENCES = {
                       "Agricultural and Forest Meteorology 147:199–208.",
     "falge2001": "Falge, E. et al. (2001). Gap filling strategies for defensible annual sums "
                  "of net ecosystem exchange. Agricultural and Forest Meteorology 107:43–69.",
+    "johnson1984": "Johnson, I. R. & Thornley, J. H. M. (1984). A model of instantaneous and "
+                   "daily canopy photosynthesis. Journal of Theoretical Biology 107:531–545.",
     "okabe2008": "Okabe, M. & Ito, K. (2008). Color Universal Design (CUD): how to make figures "
                  "and presentations that are friendly to colorblind people (colour palette of "
                  "the figures).",
@@ -522,7 +524,12 @@ def _absolute_difference(difference) -> str:
     return f" ({round(float(difference), 1) + 0.0:+.1f} g C m-2)"
 
 
-def _reading_notes(combined_used: bool) -> str:
+def _reading_notes(combined_used: bool, light_shape: bool = False) -> str:
+    """The notes under the summary cards; `light_shape`: the result wrote the daytime
+    totals' light-shape part (``daytime_curvature = "average"``), named among the parts
+    (review55)."""
+    shape = ("; for the daytime method also the shape of its light response (rectangular "
+             "or with a profiled curvature, daytime_curvature = average)" if light_shape else "")
     notes = [
         "NEE &lt; 0 is net uptake by the ecosystem; GPP and Reco are positive. Budgets are in "
         "grams of carbon per square metre (g C m-2); t CO2 ha-1 = g C m-2 × "
@@ -534,8 +541,8 @@ def _reading_notes(combined_used: bool) -> str:
         "parameters (also Rref between its windows), the choice of partitioning method, of "
         "respiration temperature and of respiration form (Lloyd–Taylor or a constant Q10; by "
         "default the nighttime Reco is their average weighted by how well each fits the night "
-        "data, the weight in the manifest's provenance.respiration_form), as far as each applies to the "
-        "flux); systematic errors of the measurement itself (energy-balance closure, "
+        "data, the weight in the manifest's provenance.respiration_form)"
+        f"{shape}, as far as each applies to the flux); systematic errors of the measurement itself (energy-balance closure, "
         "advection, storage, footprint) are not included (the manifest lists every part "
         "left out).",
     ]
@@ -885,8 +892,56 @@ def _respiration_methods(config: dict) -> tuple[str, list[str]]:
     return text, cited
 
 
+def _light_shape_methods(config: dict, light_shape=None) -> tuple[str, str, list[str]]:
+    """The daytime light response's shape as the result's config says, a sentence on the
+    ``"average"`` of two shapes, and the references (review55: the methods named the
+    rectangular light response whatever ``daytime_curvature`` was).
+
+    Parameters
+    ----------
+    config : dict
+        The result's settings (``daytime_curvature``: 0 or absent, the rectangular
+        hyperbola; a number, that curvature; ``"fit"``; ``"average"``).
+    light_shape : dict, optional
+        The manifest's ``provenance.light_shape`` (written where the average was made).
+
+    Returns
+    -------
+    shape, average, cited : str, str, list of str
+    """
+    curvature = config.get("daytime_curvature", 0.0)
+    if curvature in (None, 0, 0.0, "average"):
+        shape, cited = "rectangular light response", []
+    elif curvature == "fit":
+        shape = ("non-rectangular light response (Johnson & Thornley 1984) whose curvature, "
+                 "profiled on the central u* run's windows, every window and u* scenario takes "
+                 "(daytime_curvature = fit; the value in the daytime parameter table)")
+        cited = ["johnson1984"]
+    else:
+        shape = (f"non-rectangular light response of curvature {_setting_value(curvature)} "
+                 "(daytime_curvature; Johnson & Thornley 1984)")
+        cited = ["johnson1984"]
+    average = ""
+    if curvature == "average":
+        cited = ["johnson1984"]
+        if light_shape:
+            average = (" With daytime_curvature = average the central run was refitted once "
+                       "with a curvature profiled on the record (a non-rectangular light "
+                       "response, Johnson & Thornley 1984; curvature "
+                       f"{_setting_value(light_shape.get('profiled_curvature'))}), and daytime "
+                       "GPP and Reco are the equal-weight average of the two fits, the same "
+                       "shift in every u* scenario; half their difference is the light-shape "
+                       "part of the daytime totals (the manifest's provenance.light_shape).")
+        else:
+            average = (" daytime_curvature = average was set, but no curvature could be "
+                       "profiled (the warnings): daytime GPP and Reco are the rectangular "
+                       "fit's alone, without a light-shape part.")
+    return shape, average, cited
+
+
 def _methods(config: dict, has_random: bool, soil: bool = False,
-             windows_cut: bool = False, light_tests=None) -> tuple[str, list[str]]:
+             windows_cut: bool = False, light_tests=None,
+             light_shape=None) -> tuple[str, list[str]]:
     cited = ["papale2006", "reichstein2005", "lloyd1994", "lasslop2010", "kopp2011"]
     method = config.get("ustar_method", "moving_point")
     if method == "moving_point":
@@ -901,6 +956,8 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
         ustar = f"a fixed threshold of {_setting_value(config.get('ustar_threshold'))} m s-1"
     respiration, respiration_cited = _respiration_methods(config)
     cited += respiration_cited
+    shape, average, shape_cited = _light_shape_methods(config, light_shape)
+    cited += shape_cited
     cited.append("richardson2007")
     if config.get("gapfill_donors") in ("separate_day_night", "dark_first"):
         cited.append("falge2001")
@@ -924,12 +981,12 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
         f"-day window (e0_method = {_setting_value(config.get('e0_method'))}), Rref in "
         f"{_setting_value(config.get('rref_window_days'))}-day windows (Reichstein et al. "
         f"2005); GPP = Reco − NEE.{respiration}",
-        "Daytime partitioning: rectangular light response with VPD limitation of the "
+        f"Daytime partitioning: {shape} with VPD limitation of the "
         f"saturated assimilation, fitted in {_setting_value(config.get('daytime_window_days'))}"
         "-day windows (Lasslop et al. 2010), with its own E0: each window's estimate from the "
         "night data around it, pooled over the year by inverse variance (the daytime "
         "parameter table); a window whose fit sits at a bound, contradicts its night data or "
-        "does not resolve respiration is refitted with Rref from its night data.",
+        f"does not resolve respiration is refitted with Rref from its night data.{average}",
         "Uncertainty: parts of 1 sigma, combined as the root sum of squares, the stated 95 % "
         "interval ±1.96 sigma about each sum: the random measurement error, gap filling "
         "scored on artificial gaps of the site's own gap lengths (Richardson & Hollinger "
@@ -1183,7 +1240,8 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
     config = written.config
     methods, cited = _methods(config, has_random, _soil_regressor(written),
                               _windows_cut(written),
-                              manifest.get("provenance", {}).get("night_fill_light"))
+                              manifest.get("provenance", {}).get("night_fill_light"),
+                              manifest.get("provenance", {}).get("light_shape"))
     references = "".join(f"<li>{_e(_REFERENCES[key])}</li>" for key in cited)
     extra_caution = ("" if caution == CAUTION
                      else f'<p class="caution">{_e(caution)}</p>')
@@ -1207,7 +1265,7 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
 <main>
 <section id="section-summary"><h2>Summary</h2>
 {summary}
-{_reading_notes(combined_used)}
+{_reading_notes(combined_used, "gpp_daytime_uncertainty_light_shape" in annual.columns)}
 </section>
 <section id="section-warnings"><h2>Warnings</h2>{warning_html}</section>
 <section id="section-figures"><h2>Figures</h2>{figure_html}</section>

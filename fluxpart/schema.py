@@ -166,6 +166,10 @@ _NOT_COVERED = "not included: " + "; ".join(NOT_QUANTIFIED)
 #: respiration form (review54: the descriptions named neither, though both are added).
 _STRUCTURE = ("partitioning, respiration temperature (reco_uncertainty_temperature_driver) "
               "and respiration form ({form})")
+#: The daytime totals' part written with one setting only (review55: the descriptions of
+#: the totals named every part but this one, which ``daytime_curvature = "average"`` adds).
+_LIGHT_SHAPE = (", and with daytime_curvature = average the light-response shape "
+                "({flux}_uncertainty_light_shape)")
 _TOTAL_PARTS = {
     "nee": "random, gap filling and u* threshold",
     "gpp_nighttime": "random and gap filling of the records outside the night, u* threshold, "
@@ -174,9 +178,11 @@ _TOTAL_PARTS = {
     "reco_nighttime": "u* threshold, fitted parameters (E0, Rref), "
                       + _STRUCTURE.format(form="reco_uncertainty_respiration_form"),
     "gpp_daytime": "u* threshold, fitted parameters (Rref of the windows), "
-                   + _STRUCTURE.format(form="reco_daytime_uncertainty_respiration_form"),
+                   + _STRUCTURE.format(form="reco_daytime_uncertainty_respiration_form")
+                   + _LIGHT_SHAPE.format(flux="gpp_daytime"),
     "reco_daytime": "u* threshold, fitted parameters (Rref of the windows), "
-                    + _STRUCTURE.format(form="reco_daytime_uncertainty_respiration_form"),
+                    + _STRUCTURE.format(form="reco_daytime_uncertainty_respiration_form")
+                    + _LIGHT_SHAPE.format(flux="reco_daytime"),
 }
 #: What each method's fitted-parameter part holds (fluxpart.uncertainty.period_uncertainty):
 #: the daytime windows' Rref is fitted with the year's pooled E0 held fixed, and the error

@@ -77,7 +77,8 @@ def spliced_records(tair, tsoil, index=None, names=None) -> str | None:
         soil temperature change from the previous record by more than
         :data:`SOIL_STEP_FACTOR` times the 99.9th percentile of its changes (and by more
         than 1 K) and the air temperature, at the same record, by its 99th percentile or
-        more; or where fewer than 1440 pairs of consecutive records hold both
+        more (two such records in a row, one record stepping out and back, count as
+        none); or where fewer than 1440 pairs of consecutive records hold both
         temperatures.
 
     Notes
@@ -85,7 +86,8 @@ def spliced_records(tair, tsoil, index=None, names=None) -> str | None:
     Only changes between consecutive records, both present, count: a gap lets any
     temperature change. A soil temperature of exactly 0 on either side is left to the
     check of zeros written for missing values (``column_faults.zero_coded_temperature``).
-    A stuck sensor that comes back steps as well, but in its own column alone.
+    A stuck sensor that comes back steps as well, but in its own column alone. A single
+    record of both temperatures off and back (a logger's glitch) is no joint either.
 
     References
     ----------
@@ -108,6 +110,11 @@ def spliced_records(tair, tsoil, index=None, names=None) -> str | None:
     joints = np.flatnonzero(pairs & (soil_step > max(SOIL_STEP_FACTOR * soil_tail,
                                                      _MIN_SOIL_STEP))
                             & (air_step >= air_tail)) + 1
+    # a step out and back at consecutive records is one record's excursion, a logger's
+    # glitch that both sensors read (a power dip), not a stretch of another file: a
+    # single pasted record is indistinguishable from it and carries one record's flux
+    # (review55: a one-record +8 K glitch of both was named as two joints)
+    joints = joints[~(np.isin(joints, joints + 1) | np.isin(joints, joints - 1))]
     if joints.size < _MIN_JOINTS:
         return None
     names = names or {}

@@ -840,12 +840,34 @@ def _changed_months_warning(name: str, columns: dict, what: str, months: list) -
 _RH_LIKE_MEDIAN = 30.0
 
 
-def _relative_humidity_like(values) -> bool:
+def _relative_humidity_like(values, tair) -> bool:
     """Whether a column's values (in the file's unit) all lie within 0-100 with a median
-    of :data:`_RH_LIKE_MEDIAN` or more, as a relative humidity in % does."""
-    values = values[np.isfinite(values)]
-    return bool(values.size and values.min() >= 0.0 and values.max() <= 100.0
-                and np.median(values) >= _RH_LIKE_MEDIAN)
+    of :data:`_RH_LIKE_MEDIAN` or more and fall as the air warms, as a relative humidity in
+    % does.
+
+    At a vapour pressure e that changes little within hours, RH = e / e_s(T) falls as the
+    air warms and the deficit e_s(T) - e rises (Monteith & Unsworth 2013, ch. 2 (m)): a
+    hot desert's VPD in hPa (median 30-50 hPa, all below 100) read as kPa moves with the
+    temperature and is no humidity (review55: it was named as one, not offered hPa). The
+    changes from record to record are compared, so that a season both warm and humid (a
+    monsoon) does not turn the sign.
+
+    Parameters
+    ----------
+    values : numpy.ndarray
+        The column's values in the file's unit, consecutive records, NaN where missing.
+    tair : numpy.ndarray
+        Air temperature of the same records [degC].
+    """
+    present = values[np.isfinite(values)]
+    if not (present.size and present.min() >= 0.0 and present.max() <= 100.0
+            and np.median(present) >= _RH_LIKE_MEDIAN):
+        return False
+    change, warming = np.diff(values), np.diff(tair)
+    both = np.isfinite(change) & np.isfinite(warming)
+    if both.sum() < 3 or np.std(change[both]) == 0.0 or np.std(warming[both]) == 0.0:
+        return False
+    return bool(np.corrcoef(change[both], warming[both])[0, 1] < 0.0)
 
 
 def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes: int):
@@ -877,13 +899,13 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
                                   / declared_scale, 99) >= 0.1]
         fix = (f"the values look like {fits[0]!r}: set [input.units] vpd = \"{fits[0]}\""
                if fits else "check the column mapping and [input.units] vpd")
-        raw = vpd[both] / declared_scale
-        if _relative_humidity_like(raw):
+        raw = vpd / declared_scale
+        if _relative_humidity_like(raw, tair):
             # a relative humidity mapped as vpd (round mistakes44): a smaller unit would
             # read a deficit of 1 hPa or less throughout, a saturated air the too-small
             # test refuses in turn, so no unit is offered
             fix = (f"the values look like a relative humidity in % (all within 0-100, "
-                   f"median {np.median(raw):.3g}): map that column as rh in "
+                   f"median {np.nanmedian(raw):.3g}): map that column as rh in "
                    "[input.columns] (vpd is then derived from rh and tair) and vpd to the "
                    "deficit, if the file holds one")
         return (f"column {columns['vpd']!r} (vpd, read as {shown!r}): {100 * above.mean():.0f} % "

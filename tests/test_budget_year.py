@@ -229,6 +229,15 @@ def test_cli_uncertainty_parts_combine_into_the_printed_total(written_demo):
     assert np.allclose(nighttime_gpp["random"],
                        result.annual["gpp_nighttime_uncertainty_random"].to_numpy())
     assert "temperature" in _format_annual(result.annual)
+    # the light shape's column (daytime_curvature = average) is named in the heading
+    # where it is printed, as the others that are no plain word (review55)
+    assert "light shape" not in _format_annual(result.annual)
+    shaped = result.annual.assign(gpp_daytime_uncertainty_light_shape=1.0,
+                                  reco_daytime_uncertainty_light_shape=1.0)
+    heading = next(line for line in _format_annual(shaped).splitlines()
+                   if line.startswith("Uncertainty"))
+    assert "light shape: the daytime light response rectangular or with its curvature " \
+        "profiled" in heading
 
 
 def test_partial_year_warning_states_its_months():

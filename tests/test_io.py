@@ -805,6 +805,24 @@ def test_relative_humidity_mapped_as_vpd_is_named_not_offered_pa(tmp_path):
     assert "'Pa'" not in str(caught.value)
 
 
+def test_desert_vpd_in_hpa_declared_kpa_is_offered_hpa_not_named_humidity(tmp_path):
+    """A hot desert's VPD in hPa (air 28-44 degC, RH 10-26 %: e_s(T)(1 - RH) of the
+    Magnus form, WMO-No. 8 (m), 31-82 hPa, median about 49) lies within 0-100 with a
+    median above 30, as an RH in % does; read as kPa it was named a relative humidity
+    (review55). It rises as the air warms, which an RH at a steady vapour pressure does
+    not (RH = e / e_s(T); Monteith & Unsworth 2013 (m)), so hPa is offered."""
+    records = _records()
+    warm = (records["t_air"] - 12.0) / 8.0                 # 0 at night, 1 at noon
+    records["t_air"] = np.round(28.0 + 16.0 * warm, 2)
+    saturation = 6.112 * np.exp(17.62 * records["t_air"] / (243.12 + records["t_air"]))
+    records["vpd_air"] = np.round(saturation * (1.0 - (0.26 - 0.16 * warm)), 2)
+    assert 30.0 < np.median(records["vpd_air"]) and records["vpd_air"].max() < 100.0
+    with pytest.raises(ImplausibleValueError, match=r"vpd, read as 'kPa'.*look like "
+                       r"'hPa'") as caught:
+        _read(_write(tmp_path / "t.csv", records), units={"vpd": "kPa"})
+    assert "relative humidity" not in str(caught.value)
+
+
 def test_rh_fraction_declared_percent(tmp_path):
     """RH that never exceeds 1.05 % is a fraction: error with the fix."""
     records = _records()

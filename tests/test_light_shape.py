@@ -8,6 +8,7 @@ Data below are invented known-truth series.
 """
 
 import dataclasses
+import re
 
 import numpy as np
 import pandas as pd
@@ -23,6 +24,7 @@ from fluxpart.partition.light_shape import (
     average_shapes,
     central_curvature,
 )
+from fluxpart.schema import describe
 from fluxpart.uncertainty import period_uncertainty
 from fluxpart.uncertainty_parts import uncertainty_parts
 
@@ -84,6 +86,16 @@ def test_light_shape_part_in_the_daytime_totals_only_and_among_the_daytime_parts
     assert without["gpp_uncertainty_partitioning"] == 0.0
     assert out["gpp_daytime_uncertainty_total"] == pytest.approx(part)
     assert out["reco_nighttime_uncertainty_total"] == pytest.approx(0.0, abs=1e-9)
+    # the totals' descriptions name the part (review55): the parts they name by column,
+    # with the u*, parameter and partitioning parts, give the total back
+    for flux in ("gpp_daytime", "reco_daytime"):
+        text = describe("annual", f"{flux}_uncertainty_total")[1]
+        named = re.findall(r"\(((?:gpp|reco)\w*_uncertainty_\w+)\)", text)
+        assert f"{flux}_uncertainty_light_shape" in named
+        parts = [f"{flux}_uncertainty_ustar", f"{flux}_uncertainty_parameters",
+                 f"{flux.split('_')[0]}_uncertainty_partitioning", *named]
+        assert np.sqrt(np.nansum(np.square(out[parts].to_numpy(dtype=float)))) == \
+            pytest.approx(out[f"{flux}_uncertainty_total"], rel=1e-12)
     annual = pd.DataFrame([out]).assign(year=2021).set_index("year")
     shown = uncertainty_parts(annual)
     assert shown.loc[(2021, "reco_daytime"), "light shape"] == pytest.approx(part)
@@ -100,3 +112,28 @@ def test_setting_accepted_and_the_runs_fit_the_rectangular_shape():
     assert central_curvature("fit") == "fit" and central_curvature(0.4) == 0.4
     with pytest.raises(ConfigError, match="daytime_curvature"):
         Config(daytime_curvature="averaged")
+
+
+def test_average_that_cannot_profile_says_so(monkeypatch):
+    """Where the profiled light response cannot be fitted, ``"average"`` leaves the daytime
+    fluxes rectangular without their light-shape part; the run said nothing of it
+    (review55), a warning now names the setting, the reason and the missing part. Other
+    settings fit nothing more and say nothing."""
+    from fluxpart import central_run
+    from fluxpart.errors import InsufficientDataError
+    from fluxpart.method_failure import nan_nighttime
+
+    def no_profile(*args, **kwargs):
+        raise InsufficientDataError("no light-response window with a profiled curvature")
+
+    monkeypatch.setattr(central_run, "fit_daytime", no_profile)
+    monkeypatch.setattr(central_run, "respiration_temperature", lambda *args: None)
+    night = dataclasses.replace(nan_nighttime(2, "tair"), e0_annual=pd.DataFrame({"e0": [200.0]}))
+    central = (None, np.zeros(2), None, night, _day([1.0, 2.0], [1.0, 1.0]))
+    arguments = (None, None, None, central, np.zeros(2, dtype=bool), "tair", 0)
+    shape, note = central_run.averaged_shape(*arguments, Config(daytime_curvature=AVERAGE))
+    assert shape is None
+    assert note.startswith("daytime partitioning: daytime_curvature = \"average\"")
+    assert "no light-response window with a profiled curvature" in note
+    assert "no light-shape part" in note
+    assert central_run.averaged_shape(*arguments, Config()) == (None, "")

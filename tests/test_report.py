@@ -1476,6 +1476,38 @@ def test_methods_name_the_years_the_night_fills_took_the_preceding_days_light():
         assert "preceding 24 h" not in gap_filling_item({**config, **other}, tests)
 
 
+def test_methods_name_the_light_response_shape_the_result_used():
+    """The daytime item said "rectangular light response" whatever daytime_curvature
+    was (review55): a curvature set, one profiled ("fit") or the average of two shapes
+    ("average", dayshape49) is named with the non-rectangular hyperbola's source (Johnson
+    & Thornley 1984); the average states its profiled curvature from the provenance, or,
+    where none was written (the profile could not be fitted), that the rectangular fit
+    stands alone. A result without the setting (before it existed) is rectangular."""
+    def day_item(config, light_shape=None):
+        listed, cited = report._methods(config, False, light_shape=light_shape)
+        item = next(i for i in listed.split("<li>") if i.startswith("Daytime"))
+        return html.unescape(item), cited
+
+    for config in ({}, {"daytime_curvature": 0.0}):
+        item, cited = day_item(config)
+        assert "rectangular light response" in item and "johnson1984" not in cited
+        assert "Johnson" not in item and "average" not in item
+    item, cited = day_item({"daytime_curvature": 0.7})
+    assert "non-rectangular light response of curvature 0.7" in item
+    assert "johnson1984" in cited and "Johnson, I. R." in report._REFERENCES["johnson1984"]
+    item, _ = day_item({"daytime_curvature": "fit"})
+    assert "curvature, profiled on the central u* run's windows" in item
+    item, cited = day_item({"daytime_curvature": "average"}, {"profiled_curvature": 0.463154})
+    assert item.startswith("Daytime partitioning: rectangular light response")
+    assert "curvature 0.463154" in item and "equal-weight average" in item
+    assert "light-shape part" in item and "johnson1984" in cited
+    item, _ = day_item({"daytime_curvature": "average"})
+    assert "no curvature could be profiled" in item and "rectangular fit's alone" in item
+    # the notes under the cards list the light shape among the parts where it was written
+    assert "light response" not in report._reading_notes(False)
+    assert "the shape of its light response" in report._reading_notes(False, True)
+
+
 def test_methods_name_the_respiration_form_and_temperature_the_result_used(folder):
     """The methods said "Nighttime partitioning: Lloyd–Taylor respiration" alone, while
     a default run's central nighttime Reco is the BIC-weighted average of Lloyd–Taylor

@@ -12,6 +12,7 @@ invented known truth: the records as written, compared value for value and stamp
 stamp.
 """
 
+import re
 import zipfile
 
 import numpy as np
@@ -185,6 +186,11 @@ def test_whitespace_names_with_bracketed_units_are_one_name_a_field(tmp_path):
     assert len(read) == len(ends)
     assert any("'co2 [umol m-2 s-1]'" in w and "outside their bracketed units" in w
                for w in report.warnings)
+    # whole names, four at most (review55: cut at 160 characters, mid-name)
+    said = next(w for w in report.warnings if "outside their bracketed units" in w)
+    shown = said.split("bracketed units (", 1)[1]
+    assert re.findall(r"'([^']*)'", shown) == [name for name in names if " " in name][:4]
+    assert said.endswith(" and 1 more), one a field")
     # a header whose words fit no field count stays refused, naming the mismatch
     path.write_text("\n".join(["  ".join(names) + " spare [V]"] + body) + "\n")
     with pytest.raises(InputFileError, match=r"where the header has"):
@@ -213,3 +219,16 @@ def test_a_zip_of_one_table_and_its_documents_is_the_table(tmp_path):
                                 ("README.txt", "two halves\n")])
     with pytest.raises(InputFileError, match=r"zip archive holding 3 file\(s\)"):
         _read(tmp_path / "two.zip")
+    # a read-me without its table is no table (review55: it was read as the table and
+    # refused for a missing time column, its one line a header)
+    _zip(tmp_path / "doc.zip", [("README.txt", "-9999 is missing\n"), ("LICENSE", "CC BY\n")])
+    with pytest.raises(InputFileError, match=r"documents only \('README.txt', 'LICENSE'"):
+        _read(tmp_path / "doc.zip")
+    _zip(tmp_path / "one.zip", [("README.txt", "-9999 is missing\n")])
+    with pytest.raises(InputFileError, match=r"documents only \('README.txt': .*no table"):
+        _read(tmp_path / "one.zip")
+    # a web page alone may be a portal's table: read, and named by the reader as HTML
+    _zip(tmp_path / "page.zip", [("fluxes.html", "<html><table><tr><td>1</td></tr></table>\n")])
+    with pytest.raises(InputFileError) as caught:
+        _read(tmp_path / "page.zip")
+    assert "documents only" not in str(caught.value) and "HTML" in str(caught.value)

@@ -76,3 +76,20 @@ def test_a_pasted_month_is_named_and_a_storm_or_a_sensor_swap_is_not():
     screened = pd.DataFrame({"tair": pasted_air, "tsoil": pasted_soil}, index=index)
     stages = [finding.stage for finding in _column_faults(screened, None, 30)]
     assert STAGE in stages
+
+
+def test_one_record_of_both_sensors_off_and_back_is_no_splice():
+    """A logger's glitch (a power dip read by both sensors) puts one record of air and
+    soil temperature 8 K off and back: two steps in a row, no stretch of another file
+    (review55: named as two joints of a pasted stretch). A pasted month is still named
+    beside such a glitch."""
+    index, air, soil = _site()
+    glitched_air, glitched_soil = air.copy(), soil.copy()
+    glitched_air[3000] += 8.0
+    glitched_soil[3000] += 8.0
+    assert spliced_records(glitched_air, glitched_soil, index) is None
+    _, other_air, other_soil = _site(mean=22.0, seed=1)
+    month = slice(1000, 1000 + 30 * 48 + 7)
+    glitched_air[month], glitched_soil[month] = other_air[month], other_soil[month]
+    text = spliced_records(glitched_air, glitched_soil, index)
+    assert text is not None and "at 2 records" in text

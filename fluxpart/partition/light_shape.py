@@ -147,6 +147,26 @@ class ShapeAverage:
                              "diurnal response"}
 
 
+def not_averaged(reason) -> str:
+    """The warning where ``daytime_curvature = "average"`` could not fit the profiled shape.
+
+    Parameters
+    ----------
+    reason : Exception or str
+        Why the daytime method with a profiled curvature could not be fitted.
+
+    Returns
+    -------
+    str
+        The warning: the daytime fluxes are the rectangular hyperbola's alone and their
+        totals hold no light-shape part, so they state less than the setting asked for.
+    """
+    return ("daytime partitioning: daytime_curvature = \"average\", but the light response "
+            f"with a profiled curvature could not be fitted ({reason}); daytime GPP and Reco "
+            "are the rectangular hyperbola's alone and their totals hold no light-shape part "
+            "(gpp_daytime_uncertainty_light_shape is not written)")
+
+
 def average_shapes(rectangular, profiled, weight=PROFILED_WEIGHT) -> ShapeAverage:
     """The daytime method's GPP and Reco averaged over the two light-response shapes.
 
