@@ -548,7 +548,6 @@ class Config:
     ustar_annual: str = "median"
     ustar_distinct_seasons: str = "own_threshold"
     ustar_plateau_reference: float = 0.25
-    ustar_threshold_point: str = "bracket_midpoint"
     ustar_min_threshold: float | None = None
     ustar_bootstrap_draws: int = 100
     ustar_scenarios: tuple[int, ...] = (16, 50, 84)
@@ -760,7 +759,6 @@ _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "daytime_weighting": ("random_error", "none"),
             "ustar_method": ("moving_point", "change_point", "fixed"),
             "ustar_annual": ("median", "maximum"),
-            "ustar_threshold_point": ("class_mean", "bracket_midpoint"),
             "ustar_distinct_seasons": ("own_threshold", "uncertainty_only"),
             "clock_check": ("refuse", "warn", "off")}
 

@@ -23,8 +23,7 @@ __all__ = ["FIXED_CHECK_READS", "ignored_settings"]
 #: Parameters of the moving point test only (Reichstein et al. 2005; Papale et al. 2006
 #: (m)), which :func:`fluxpart.ustar.detect_threshold` passes to that detector alone.
 MOVING_POINT_ONLY = ("ustar_classes", "ustar_plateau_share", "ustar_correlation_limit",
-                     "ustar_min_resolution", "ustar_annual", "ustar_plateau_reference",
-                     "ustar_threshold_point")
+                     "ustar_min_resolution", "ustar_annual", "ustar_plateau_reference")
 
 #: Parameters of u* threshold detection and its bootstrap, which change no number where
 #: the threshold is fixed (``fluxpart.ustar_stage.ustar_thresholds`` returns before detecting).

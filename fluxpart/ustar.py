@@ -83,13 +83,6 @@ MIN_RESOLUTION = 4.0
 #: (the published test). Our rule; see :func:`moving_point_threshold`.
 PLATEAU_REFERENCE = 0.25
 
-#: Where the moving point test places a temperature class's threshold among its u*
-#: classes: ``"class_mean"``, the mean u* of the first class on the plateau (the
-#: published rule (m)), or ``"bracket_midpoint"``, halfway between the mean u* of the
-#: last class below the plateau and that of the first class on it. See
-#: :func:`moving_point_threshold`.
-THRESHOLD_POINTS = ("class_mean", "bracket_midpoint")
-
 #: Percentiles of the bootstrap distribution that are reported [%]: the median,
 #: ±1 standard deviation of a normal distribution (16/84) and the 90 % interval.
 PERCENTILES = (5, 16, 50, 84, 95)
@@ -275,8 +268,7 @@ def moving_point_threshold(nee, ustar, tair, is_night, seasons, *, temperature_c
                            ustar_classes=20, plateau_share=0.99, correlation_limit=0.4,
                            min_threshold=0.1, min_records_per_class=3,
                            min_resolution=MIN_RESOLUTION, annual="median",
-                           plateau_reference=PLATEAU_REFERENCE,
-                           threshold_point="class_mean") -> ThresholdEstimate:
+                           plateau_reference=PLATEAU_REFERENCE) -> ThresholdEstimate:
     """u* threshold by the moving point test (Reichstein et al. 2005; Papale et al. 2006).
 
     Parameters
@@ -451,7 +443,7 @@ def moving_point_threshold(nee, ustar, tair, is_night, seasons, *, temperature_c
     """
     options = _moving_point_options(temperature_classes, ustar_classes, plateau_share,
                                     correlation_limit, min_threshold, min_records_per_class,
-                                    min_resolution, annual, plateau_reference, threshold_point)
+                                    min_resolution, annual, plateau_reference)
     data = _night_data(nee, ustar, tair, is_night, seasons, need_tair=True)
     core = _moving_point_core(data.nee, data.ustar, data.tair, data.group, data.groups, options)
     return _estimate_tables(data, core, options, "moving_point")
@@ -768,8 +760,7 @@ def detect_threshold(index, nee, ustar, tair, is_night, latitude, *, detector="m
                      draws=100, seed=0, temperature_classes=6, ustar_classes=20,
                      plateau_share=0.99, correlation_limit=0.4, min_threshold=0.1,
                      min_records_per_class=3, min_resolution=MIN_RESOLUTION, annual="median",
-                     plateau_reference=PLATEAU_REFERENCE, threshold_point="class_mean", bins=50,
-                     alpha=0.05, edge_bins=3, min_significant_share=0.25,
+                     plateau_reference=PLATEAU_REFERENCE, bins=50, alpha=0.05, edge_bins=3, min_significant_share=0.25,
                      min_records_per_bin=3) -> UstarResult:
     """Detect the u* threshold of each year and season, with its bootstrap spread.
 
@@ -797,7 +788,7 @@ def detect_threshold(index, nee, ustar, tair, is_night, latitude, *, detector="m
         the bootstrap (percentiles NaN).
     seed : int, optional
         Seed of the bootstrap.
-    temperature_classes, ustar_classes, plateau_share, correlation_limit, min_threshold, min_records_per_class, min_resolution, annual, plateau_reference, threshold_point
+    temperature_classes, ustar_classes, plateau_share, correlation_limit, min_threshold, min_records_per_class, min_resolution, annual, plateau_reference
         Settings of :func:`moving_point_threshold` (`temperature_classes` and
         `min_threshold` are also used by the change-point detector).
     bins, alpha, edge_bins, min_significant_share, min_records_per_bin
@@ -843,7 +834,7 @@ def detect_threshold(index, nee, ustar, tair, is_night, latitude, *, detector="m
                        plateau_share=plateau_share, correlation_limit=correlation_limit,
                        min_threshold=min_threshold, min_records_per_class=min_records_per_class,
                        min_resolution=min_resolution, annual=annual,
-                       plateau_reference=plateau_reference, threshold_point=threshold_point)
+                       plateau_reference=plateau_reference)
         estimate = moving_point_threshold(nee, ustar, tair, is_night, seasons, **options)
     elif detector == "change_point":
         options = dict(temperature_classes=temperature_classes, bins=bins, alpha=alpha,
@@ -1115,12 +1106,9 @@ def _moving_point_level(nee, ustar, tair, group, n_groups, n_t, options, ranks):
     reached[..., -1] = False
     plateau_reached = reached.any(axis=-1)
     first = np.argmax(reached, axis=-1)
-    point = np.take_along_axis(class_ustar, first[..., None], -1)[..., 0]
-    if options["threshold_point"] == "bracket_midpoint":
-        # the loss ends between the last class below the plateau and the first on it
-        below = np.take_along_axis(class_ustar, np.maximum(first - 1, 0)[..., None], -1)[..., 0]
-        point = np.where((first > 0) & np.isfinite(below), 0.5 * (below + point), point)
-    class_threshold = np.where(plateau_reached, point, np.nan)
+    class_threshold = np.where(plateau_reached,
+                               np.take_along_axis(class_ustar, first[..., None], -1)[..., 0],
+                               np.nan)
 
     stratum_count = np.bincount(stratum, minlength=n_strata).astype(float)
     # resolution: mean NEE of the upper half of the u* classes (the plateau) over the
@@ -1597,7 +1585,7 @@ def _floored(values, floor):
 
 def _moving_point_options(temperature_classes, ustar_classes, plateau_share, correlation_limit,
                           min_threshold, min_records_per_class, min_resolution=0.0,
-                          annual="maximum", plateau_reference=1.0, threshold_point="class_mean"):
+                          annual="maximum", plateau_reference=1.0):
     if annual not in ANNUAL_RULES:
         raise ConfigError(f"ustar annual = {annual!r}: expected one of "
                           f"{', '.join(repr(r) for r in ANNUAL_RULES)}")
@@ -1611,7 +1599,6 @@ def _moving_point_options(temperature_classes, ustar_classes, plateau_share, cor
         "min_resolution": _check_non_negative("min_resolution", min_resolution, unit="[1]"),
         "annual": annual,
         "plateau_reference": _check_share("plateau_reference", plateau_reference),
-        "threshold_point": _check_choice("threshold_point", threshold_point, THRESHOLD_POINTS),
     }
     return options
 
@@ -1637,11 +1624,11 @@ def _detector_options(detector, options, has_tair):
                                                  "plateau_share", "correlation_limit",
                                                  "min_threshold", "min_records_per_class",
                                                  "min_resolution", "annual",
-                                                 "plateau_reference", "threshold_point")
+                                                 "plateau_reference")
         defaults = dict(temperature_classes=6, ustar_classes=20, plateau_share=0.99,
                         correlation_limit=0.4, min_threshold=0.1, min_records_per_class=3,
                         min_resolution=MIN_RESOLUTION, annual="median",
-                        plateau_reference=PLATEAU_REFERENCE, threshold_point="class_mean")
+                        plateau_reference=PLATEAU_REFERENCE)
     elif detector == "change_point":
         builder, valid = _change_point_options, ("temperature_classes", "bins", "alpha",
                                                  "edge_bins", "min_significant_share",
@@ -1659,13 +1646,6 @@ def _detector_options(detector, options, has_tair):
     if detector == "change_point" and not has_tair:
         merged["temperature_classes"] = 1
     return builder(**merged)
-
-
-def _check_choice(name, value, choices):
-    if value not in choices:
-        raise ConfigError(f"ustar {name} = {value!r}: expected one of "
-                          f"{', '.join(repr(c) for c in choices)}")
-    return value
 
 
 def _is_number(value) -> bool:

@@ -260,8 +260,7 @@ def _detected(index, nee, ustar_values, tair, is_night, latitude, config, floor)
         ustar_classes=config.ustar_classes, plateau_share=config.ustar_plateau_share,
         correlation_limit=config.ustar_correlation_limit,
         min_resolution=config.ustar_min_resolution, annual=config.ustar_annual,
-        plateau_reference=config.ustar_plateau_reference,
-        threshold_point=config.ustar_threshold_point)
+        plateau_reference=config.ustar_plateau_reference)
 
 
 def night_deficit(fixed: float, threshold: float, nee, ustar_values, strata):

@@ -73,8 +73,7 @@ def ustar_thresholds(frame, screened, is_night, site, config):
         ustar_classes=config.ustar_classes, plateau_share=config.ustar_plateau_share,
         correlation_limit=config.ustar_correlation_limit,
         min_resolution=config.ustar_min_resolution, annual=config.ustar_annual,
-        plateau_reference=config.ustar_plateau_reference,
-        threshold_point=config.ustar_threshold_point)
+        plateau_reference=config.ustar_plateau_reference)
     annual = found.annual.set_index("year").reindex(years)
     detected = annual["threshold"].astype(float)
     # a year without a detected threshold takes the nearest year's (same tower and canopy),
