@@ -90,8 +90,8 @@ def _uptake_days(nee, rg, index):
     day = both & (rg_course > COURSE_DAY)
     courses = pd.DataFrame({"month": month, "rg": rg_course,
                             "nee": nee - nee_anomaly}).loc[day].drop_duplicates()
-    slopes = courses.groupby("month")[["rg", "nee"]].apply(
-        lambda c: np.polyfit(c["rg"], c["nee"], 1)[0] if len(c) >= 4 else np.nan)
+    slopes = {m: np.polyfit(c["rg"], c["nee"], 1)[0]
+              for m, c in courses.groupby("month") if c["rg"].nunique() >= 4}
     slope = pd.Series(month).map(slopes).to_numpy(dtype=float)
     with np.errstate(invalid="ignore"):
         day &= slope < UPTAKE_SLOPE

@@ -61,3 +61,6 @@ def test_nee_of_another_weather_is_named_and_its_own_is_not():
                                      {"nee": "co2_exchange", "rg": "solar_down"})
     assert text is not None
     assert "'co2_exchange'" in text and "'solar_down'" in text and "another year" in text
+    # a polar night (no daytime record) and a record without uptake are not judged
+    assert weather_of_another_record(nee, np.zeros_like(rg), index) is None
+    assert weather_of_another_record(np.abs(nee), rg, index, vpd, tair) is None

@@ -47,6 +47,7 @@ from bench_prefilter_vpd_zero import site_years  # noqa: E402
 from fluxpart import weather_pairing  # noqa: E402
 
 ROOT = Path(__file__).resolve().parents[2]
+MONTHS = "--months" in sys.argv
 
 
 def figures(frame, nee=None, weather=None):
@@ -63,6 +64,15 @@ def figures(frame, nee=None, weather=None):
         nee, np.column_stack([columns[c] for c in drivers]), frame.index)
     called = weather_pairing.weather_of_another_record(
         nee, columns["rg"], frame.index, columns.get("vpd"), columns.get("tair")) is not None
+    if MONTHS:
+        # the same rule on each calendar month alone (measured, not landed)
+        keys = frame.index.year * 100 + frame.index.month
+        months = [int(k) for k in np.unique(keys)
+                  if weather_pairing.weather_of_another_record(
+                      nee[keys == k], columns["rg"][keys == k], frame.index[keys == k],
+                      *(columns[c][keys == k] if c in columns else None
+                        for c in ("vpd", "tair"))) is not None]
+        print(f"months   called {months}")
     return q, se, qc, sec, gain, z, called
 
 
@@ -154,6 +164,8 @@ def main(argv=None) -> int:
     parser = argparse.ArgumentParser()
     parser.add_argument("--trials", nargs="*", default=[])
     parser.add_argument("--skip-generated", action="store_true")
+    parser.add_argument("--months", action="store_true",
+                        help="also the rule on each calendar month alone")
     args = parser.parse_args(argv)
     from fluxpart.demo import site_year
     from fluxpart.io import read_config
