@@ -222,7 +222,8 @@ def weather_of_another_record(nee, rg, index, vpd=None, tair=None,
     index : pandas.DatetimeIndex
         Interval starts of the records (regular).
     vpd, tair : array_like, optional
-        VPD [hPa] and air temperature [degC] of each record, for the free fit.
+        VPD [hPa] and air temperature [degC] of each record, for the free fit (left out
+        where missing in half the records or more).
     names : dict, optional
         Canonical name -> file column, to name the columns.
 
@@ -252,7 +253,9 @@ def weather_of_another_record(nee, rg, index, vpd=None, tair=None,
     if not step_share + 2 * step_error < RESPONSE_SHARE:
         return None
     present = {"rg": rg, "vpd": vpd, "tair": tair}
-    columns = [name for name, values in present.items() if values is not None]
+    # a driver missing in most records would leave the free fit too few (rg is judged)
+    columns = ["rg"] + [name for name in ("vpd", "tair") if present[name] is not None
+                        and np.isfinite(np.asarray(present[name], dtype=float)).mean() >= 0.5]
     drivers = np.column_stack([np.asarray(present[name], dtype=float) for name in columns])
     gain, z = own_weather_gain(nee, drivers, index)
     if not z < EVIDENCE:

@@ -61,6 +61,9 @@ def test_nee_of_another_weather_is_named_and_its_own_is_not():
                                      {"nee": "co2_exchange", "rg": "solar_down"})
     assert text is not None
     assert "'co2_exchange'" in text and "'solar_down'" in text and "another year" in text
+    # an empty VPD column leaves the free fit to Rg and tair: still judged
+    assert weather_of_another_record(nee, other_rg, index, np.full_like(rg, np.nan),
+                                     other_tair) is not None
     # a polar night (no daytime record) and a record without uptake are not judged
     assert weather_of_another_record(nee, np.zeros_like(rg), index) is None
     assert weather_of_another_record(np.abs(nee), rg, index, vpd, tair) is None
