@@ -103,9 +103,9 @@ def _uptake_days(nee, rg, index):
 
 def _ratio(y, p, blocks):
     """Regression through 0 of ``y`` on ``p``: (slope, standard error over blocks)."""
-    if y.size < _MIN_RECORDS:
-        return np.nan, np.nan
     sxx = float(np.sum(p * p))
+    if y.size < _MIN_RECORDS or sxx == 0:        # too few records, or a cloudless Rg
+        return np.nan, np.nan
     q = float(np.sum(p * y)) / sxx
     scores = pd.Series(p * (y - q * p)).groupby(blocks).sum().to_numpy()
     return q, float(np.sqrt(np.sum(scores ** 2))) / sxx
