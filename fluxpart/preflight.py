@@ -121,6 +121,7 @@ from . import (
     ustar_prefilter,
     vpd_soil,
     vpd_zero,
+    weather_pairing,
 )
 from .column_faults import (
     PLACEHOLDER_VARIABLES,
@@ -469,6 +470,15 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                 screened["tair"].to_numpy(dtype=float), potential, screened.index, names)
             if text:
                 findings.append(Finding(day_sign.STAGE, text, False))
+    if {"nee", "rg"} <= set(screened.columns) and not any(
+            finding.stage.startswith("input (nee") for finding in findings):
+        # NEE beside another record's weather: it answers none of it (round mistakes45)
+        text = weather_pairing.weather_of_another_record(
+            screened["nee"].to_numpy(dtype=float), screened["rg"].to_numpy(dtype=float),
+            screened.index, *(screened[c].to_numpy(dtype=float) if c in screened.columns
+                              else None for c in ("vpd", "tair")), names=names)
+        if text:
+            findings.append(Finding(weather_pairing.STAGE, text, False))
     if "rg" in screened.columns and potential is not None:
         text = shaded_rg(screened["rg"].to_numpy(dtype=float), potential, screened.index,
                          names)
