@@ -52,9 +52,44 @@ _MIN_SOIL_STEP = 1.0
 #: Fewest joints that name the record [1]: a pasted stretch inside the record has two,
 #: a storm gives one.
 _MIN_JOINTS = 2
+#: Longest stretch between two joints that makes them one pasted stretch [days]. Our
+#: choice, a season: a stretch pasted to fill an outage is bounded by two joints days to
+#: weeks apart (a month pasted in was the case measured), while two lone steps a year
+#: apart are two unrelated events (a trial's subarctic soil stepped 8.1 K at the start of
+#: its snow model and 1.9 K 22 months later: named before round lead49).
+_MAX_STRETCH_DAYS = 92.0
 #: Fewest pairs of consecutive records with both temperatures present for the tail to
 #: be judged [1]: 30 days of half-hours (our choice).
 _MIN_PAIRS = 1440
+
+
+def _bounding_a_stretch(joints, index, size) -> np.ndarray:
+    """The joints with another joint at most :data:`_MAX_STRETCH_DAYS` away.
+
+    Parameters
+    ----------
+    joints : numpy.ndarray of int
+        Record positions of the joints, ascending.
+    index : pandas.DatetimeIndex or None
+        Interval starts of the records; None keeps every joint (no time to measure).
+    size : int
+        Number of records.
+
+    Returns
+    -------
+    numpy.ndarray of int
+        The joints that, with a neighbour, bound a stretch of a season at most.
+    """
+    if joints.size < 2 or index is None or len(index) != size:
+        return joints
+    days = (pd.DatetimeIndex(index)[joints] - pd.DatetimeIndex(index)[joints[0]]) \
+        / pd.Timedelta(days=1)
+    days = np.asarray(days, dtype=float)
+    gaps = np.diff(days)
+    near = np.zeros(joints.size, dtype=bool)
+    near[:-1] |= gaps <= _MAX_STRETCH_DAYS
+    near[1:] |= gaps <= _MAX_STRETCH_DAYS
+    return joints[near]
 
 
 def spliced_records(tair, tsoil, index=None, names=None) -> str | None:
@@ -78,8 +113,9 @@ def spliced_records(tair, tsoil, index=None, names=None) -> str | None:
         :data:`SOIL_STEP_FACTOR` times the 99.9th percentile of its changes (and by more
         than 1 K) and the air temperature, at the same record, by its 99th percentile or
         more (two such records in a row, one record stepping out and back, count as
-        none); or where fewer than 1440 pairs of consecutive records hold both
-        temperatures.
+        none; with `index`, only joints within 92 days of another count: the two ends
+        of one pasted stretch); or where fewer than 1440 pairs of consecutive records
+        hold both temperatures.
 
     Notes
     -----
@@ -115,6 +151,7 @@ def spliced_records(tair, tsoil, index=None, names=None) -> str | None:
     # single pasted record is indistinguishable from it and carries one record's flux
     # (review55: a one-record +8 K glitch of both was named as two joints)
     joints = joints[~(np.isin(joints, joints + 1) | np.isin(joints, joints - 1))]
+    joints = _bounding_a_stretch(joints, index, air.size)
     if joints.size < _MIN_JOINTS:
         return None
     names = names or {}

@@ -93,3 +93,20 @@ def test_one_record_of_both_sensors_off_and_back_is_no_splice():
     glitched_air[month], glitched_soil[month] = other_air[month], other_soil[month]
     text = spliced_records(glitched_air, glitched_soil, index)
     assert text is not None and "at 2 records" in text
+
+
+def test_two_lone_steps_a_year_apart_are_no_pasted_stretch():
+    """Two joints bound a pasted stretch; two storms' steps 300 days apart are two events,
+    not a stretch (round lead49: a trial's subarctic soil stepped at its snow model's start
+    and 22 months later and was named), while the same steps 30 days apart are named."""
+    index, air, soil = _site(days=365)
+
+    def stepped(first, second):
+        warm_air, warm_soil = air.copy(), soil.copy()
+        warm_air[first:second] += 8.0
+        warm_soil[first:second] += 8.0
+        return spliced_records(warm_air, warm_soil, index)
+
+    assert stepped(2000, 2000 + 30 * 48) is not None
+    assert stepped(2000, 2000 + 300 * 48) is None
+    assert spliced_records(air, soil, None) is None
