@@ -64,6 +64,13 @@ def test_nee_of_another_weather_is_named_and_its_own_is_not():
     # an empty VPD column leaves the free fit to Rg and tair: still judged
     assert weather_of_another_record(nee, other_rg, index, np.full_like(rg, np.nan),
                                      other_tair) is not None
+    # a VPD with scattered gaps (40 % at random) left no month complete under every
+    # shift and silenced the check; Rg alone still judges (review56)
+    scattered = other_vpd.copy()
+    scattered[np.random.default_rng(4).random(rg.size) < 0.4] = np.nan
+    assert weather_of_another_record(nee, other_rg, index, scattered, other_tair) is not None
+    assert weather_of_another_record(nee, rg, index, np.where(np.isnan(scattered), np.nan,
+                                                               vpd), tair) is None
     # a polar night (no daytime record) and a record without uptake are not judged
     assert weather_of_another_record(nee, np.zeros_like(rg), index) is None
     assert weather_of_another_record(np.abs(nee), rg, index, vpd, tair) is None
