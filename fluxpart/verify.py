@@ -284,6 +284,13 @@ class VerifyReport:
         return not self.differences and (not self.rounding or not self.exact)
 
     @property
+    def descriptions_only(self) -> bool:
+        """True when every failure is a column's description worded otherwise (values
+        equal; no unit, site or other metadata) and nothing else differs beyond rounding."""
+        return bool(self.differences) and not self.replaced_manifest and all(
+            d.kind == "metadata" and _is_description(d.column) for d in self.differences)
+
+    @property
     def version_warnings(self) -> tuple:
         """The environment differences (kept under their earlier name)."""
         return self.environment
@@ -354,8 +361,10 @@ class VerifyReport:
                 lines = [f"NOT reproduced: {len(failures)} difference(s) between "
                          f"{folder} and its manifest (nothing recomputed):"]
             else:
+                wording = (", all of them in the tables' column descriptions; every value "
+                           "equals its recomputation" if self.descriptions_only else "")
                 lines = [f"NOT reproduced: {len(failures)} difference(s) between "
-                         f"{folder} and its recomputation:"]
+                         f"{folder} and its recomputation{wording}:"]
             lines += [f"  {d.describe()}" for d in failures + list(self.rounding)]
             # a file changed after it was written is no effect of code: naming the code
             # alone as the likely cause beside it read as an all-clear (review43)
@@ -376,6 +385,16 @@ class VerifyReport:
                     "see below)" if edited else
                     "the product's code differs from the code that wrote the result (code "
                     "fingerprint changed; see below)"))
+            if self.descriptions_only:
+                # 0.31.0's folders under 0.32.0: 45 long lines of reworded descriptions and
+                # no word of what they mean for the numbers or what to do (review56)
+                lines.append(
+                    "what this means: the numbers are reproduced; only the words describing "
+                    "columns differ (no unit, site or setting), as "
+                    + ("the running release words them (see its changelog)"
+                       if self.code_changed else "written in the folder's files")
+                    + ". To reproduce the descriptions too, verify with the release that "
+                    "wrote the result (result: below)")
         if self.identity:
             lines.append(f"result: {self.identity}")
         lines += [f"environment: {e}" for e in self.environment]
@@ -383,6 +402,13 @@ class VerifyReport:
         lines.append("Caution: reproduced numbers show the result follows from the recorded "
                      "input and settings; they do not certify the data or a credit. " + CAUTION)
         return "\n".join(lines)
+
+
+def _is_description(key: str) -> bool:
+    """A metadata key that holds a column's description: ``'nee description'`` (the
+    Parquet field), ``'fluxpart.columns.nee.description'``, ``'PANDAS_ATTRS.descriptions.nee'``."""
+    return (key.endswith(" description") or key.endswith(".description")
+            or key.startswith("PANDAS_ATTRS.descriptions."))
 
 
 # --------------------------------------------------------------------------- value comparison

@@ -314,6 +314,8 @@ def test_resealed_unit_or_site_metadata_edit_is_not_reproduced(copy, capsys):
            "'g m-2'" in out
     assert "daily: metadata 'fluxpart.site.utc_offset' differs" in out
     assert "annual" not in out.split("result:")[0]          # the other tables still match
+    # a unit is no wording: not said to leave the numbers reproduced (review56)
+    assert "column descriptions" not in out and "what this means" not in out
 
 
 def test_a_description_reworded_by_other_code_names_the_code_as_likely_cause(
@@ -338,6 +340,15 @@ def test_a_description_reworded_by_other_code_names_the_code_as_likely_cause(
     out = capsys.readouterr().out
     assert "daily: metadata 'nee description' differs (values equal)" in out
     assert "likely cause: the product's code differs" in out
+    # and says at the head and after the list that only descriptions differ, what that
+    # means for the numbers and what to do (0.31.0's folders under 0.32.0: 45 such lines
+    # and no summary, review56)
+    assert out.startswith("NOT reproduced: 1 difference(s)")
+    assert ("all of them in the tables' column descriptions; every value equals its "
+            "recomputation:") in out.splitlines()[0]
+    assert ("what this means: the numbers are reproduced; only the words describing columns "
+            "differ (no unit, site or setting), as the running release words them") in out
+    assert "verify with the release that wrote the result" in out
 
 def _rewrite_metadata(folder, table, change):
     """Rewrite a table's file metadata by `change(dict)`, its hash and the seal forged."""

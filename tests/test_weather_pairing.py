@@ -64,6 +64,33 @@ def test_nee_of_another_weather_is_named_and_its_own_is_not():
     # an empty VPD column leaves the free fit to Rg and tair: still judged
     assert weather_of_another_record(nee, other_rg, index, np.full_like(rg, np.nan),
                                      other_tair) is not None
+    # a VPD with scattered gaps (40 % at random) left no month complete under every
+    # shift and silenced the check; Rg alone still judges (review56)
+    scattered = other_vpd.copy()
+    scattered[np.random.default_rng(4).random(rg.size) < 0.4] = np.nan
+    assert weather_of_another_record(nee, other_rg, index, scattered, other_tair) is not None
+    assert weather_of_another_record(nee, rg, index, np.where(np.isnan(scattered), np.nan,
+                                                               vpd), tair) is None
     # a polar night (no daytime record) and a record without uptake are not judged
     assert weather_of_another_record(nee, np.zeros_like(rg), index) is None
     assert weather_of_another_record(np.abs(nee), rg, index, vpd, tair) is None
+
+
+def test_one_year_of_another_weather_in_a_longer_record_is_named_by_its_year():
+    """Known truth: two summers of NEE from the same light response (Lasslop et al. 2010
+    (m)), the second year's weather columns another draw's (a yearly file joined from the
+    wrong year). The whole record's answer is carried by the first year; judged alone, the
+    second answers none of its weather while the first answers beyond doubt: named with
+    its year. The honest record stays quiet."""
+    index, rg, tair, vpd = _weather(1, days=457)           # 2021-06-01 to 2022-08-31
+    nee = _nee(rg, tair, 2)
+    assert weather_of_another_record(nee, rg, index, vpd, tair) is None
+    _, other_rg, other_tair, other_vpd = _weather(3, days=457)
+    later = index.year == 2022
+    joined = [np.where(later, other, own) for other, own in
+              ((other_rg, rg), (other_vpd, vpd), (other_tair, tair))]
+    whole, _ = cloud_response(nee, joined[0], index)
+    assert whole > RESPONSE_SHARE - 0.1                    # the whole record still answers
+    text = weather_of_another_record(nee, *joined[:1], index, *joined[1:],
+                                     {"nee": "co2_exchange"})
+    assert text is not None and "clouds in 2022 (each year judged alone" in text
