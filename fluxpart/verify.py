@@ -98,7 +98,7 @@ from .resultdir import interrupted_writes
 from .store import file_sha256, read_table, require_owner_access
 
 __all__ = ["NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference", "VerifyReport",
-           "command_verify", "compare_tables", "field_differences", "verify"]
+           "command_verify", "compare_tables", "field_differences", "verify", "within_rounding"]
 
 #: Largest relative difference of a float value still classed as floating-point rounding.
 ROUNDING_TOLERANCE = 1e-6
@@ -502,6 +502,37 @@ def _is_standard_error(column, stored: pd.DataFrame) -> bool:
 
 def _is_float(series: pd.Series) -> bool:
     return pd.api.types.is_float_dtype(series.dtype)
+
+
+def within_rounding(column, first: pd.DataFrame, second: pd.DataFrame) -> np.ndarray:
+    """Rows where a float column of two tables of equal index differs, but only within
+    :data:`ROUNDING_TOLERANCE`, judged as :func:`compare_tables` judges it (relative to
+    the larger value, a near-zero value to :data:`NEAR_ZERO_SHARE` of the column, a
+    difference column to its operands).
+
+    Parameters
+    ----------
+    column : str
+        A column both tables hold.
+    first, second : pandas.DataFrame
+        Two tables of the same index (rows in the same order).
+
+    Returns
+    -------
+    numpy.ndarray of bool
+        Per row: the values are not bit for bit equal but equal within rounding. All
+        False where the column is no float column in both.
+
+    References
+    ----------
+    Higham, N. J. (2002). Accuracy and Stability of Numerical Algorithms, 2nd ed.,
+    SIAM, §1.7 (cancellation: a difference's rounding is its operands') (m).
+    """
+    left, right = first[column], second[column]
+    if not (_is_float(left) and _is_float(right)):
+        return np.zeros(len(left), dtype=bool)
+    differs, beyond, _ = _float_column(left, right, _operand_scale(column, first, second))
+    return differs & ~beyond
 
 
 def compare_tables(name: str, stored: pd.DataFrame, recomputed: pd.DataFrame) -> list:

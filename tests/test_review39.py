@@ -276,7 +276,7 @@ def test_diff_does_not_difference_a_year_label_over_two_periods():
                              "period_end": [pd.Timestamp(end)], "nee": [nee]},
                             index=pd.Index([2013], name="year"))
 
-    moves, _ = _annual_moves(table("2013-01-01", "2014-01-01", 106.8),
+    moves, _, _ = _annual_moves(table("2013-01-01", "2014-01-01", 106.8),
                              table("2013-07-01", "2014-07-01", -31.5))
     assert moves.at[(2013, "nee"), "first"] == 106.8
     assert moves.at[(2013, "nee"), "second"] == -31.5
@@ -285,7 +285,7 @@ def test_diff_does_not_difference_a_year_label_over_two_periods():
     text = DiffReport(Path("a"), Path("b"), (("setting", "year_start", "01-01", "07-01"),),
                       moves, 0).format()
     assert "note: year(s) 2013 cover other periods in the two folders" in text
-    same, _ = _annual_moves(table("2013-01-01", "2014-01-01", 106.8),
+    same, _, _ = _annual_moves(table("2013-01-01", "2014-01-01", 106.8),
                             table("2013-01-01", "2014-01-01", 110.9))
     assert same.at[(2013, "nee"), "change"] == pytest.approx(110.9 - 106.8)
     assert "cover other periods" not in DiffReport(Path("a"), Path("b"), (), same, 0).format()
@@ -295,7 +295,7 @@ def test_diff_does_not_difference_a_year_label_over_two_periods():
     second = pd.concat([table("2012-07-01", "2013-07-01", -40.0).set_axis(
         pd.Index([2012], name="year")), table("2013-07-01", "2014-07-01", -31.5)]).assign(
         complete=False)
-    moves, _ = _annual_moves(table("2013-01-01", "2014-01-01", 106.8).assign(complete=True),
+    moves, _, _ = _annual_moves(table("2013-01-01", "2014-01-01", 106.8).assign(complete=True),
                              second)
     text = DiffReport(Path("a"), Path("b"), (), moves, 0).format()
     assert "None" not in text and "NaT" not in text
