@@ -175,12 +175,12 @@ def test_a_budget_year_heading_names_its_period_before_the_records_it_holds():
                      "period_end": pd.Timestamp("2013-07-01")})
     heading = _period_heading(2012, pd.Timestamp("2013-01-01 00:00"),
                               pd.Timestamp("2013-06-30 23:00"), True, row)
-    assert heading.startswith("Budget year 2012 (01 Jul 2012 – 30 Jun 2013): records "
-                              "01 Jan 2013 – 30 Jun 2013, partial period")
+    assert heading.startswith("Budget year 2012 (1 Jul 2012 – 30 Jun 2013): records "
+                              "1 Jan 2013 – 30 Jun 2013, partial period")
     calendar = pd.Series({"period_start": pd.Timestamp("2013-01-01"),
                           "period_end": pd.Timestamp("2014-01-01")})
     assert _period_heading(2013, pd.Timestamp("2013-01-01"), pd.Timestamp("2013-12-31 23:00"),
-                           False, calendar) == "2013: 01 Jan 2013 – 31 Dec 2013"
+                           False, calendar) == "2013: 1 Jan 2013 – 31 Dec 2013"
 
 
 def test_a_latitude_of_the_wrong_sign_is_not_also_blamed_on_the_radiation_sensor():
