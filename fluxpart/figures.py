@@ -1336,6 +1336,15 @@ def _centre_offset_minutes(measured, potential):
     return round(60.0 * (centres[0] - centres[1])) + 0.0  # + 0.0: no "-0"
 
 
+#: Characters of the clock figure's title per line: 10.5 pt text across the 11 inches
+#: from its left margin (about 0.55 of the point size per character (m), measured: 150
+#: characters ran past the edge).
+_CLOCK_TITLE_CHARACTERS = 125
+#: Height a wrapped title's further line takes [inches]: 10.5 pt at a line spacing of 1.2
+#: plus a margin.
+_TITLE_LINE_INCHES = 0.2
+
+
 def figure_clock(drawing, written, interval) -> Figure:
     series = written.timeseries
     hour = _hour_of_day(series.index, interval)
@@ -1343,10 +1352,16 @@ def figure_clock(drawing, written, interval) -> Figure:
     months = [m for m in range(1, 13) if (month == m).any()]
     ncols = 6 if len(months) > 4 else len(months)
     nrows = -(-len(months) // ncols)
-    height = 1.15 + 1.9 * nrows
+    # the verdict, its shift and a problem can be longer than the figure is wide: wrapped
+    # on whole words, the panels moved down by the lines added (a title cut at the edge
+    # lost its end, "not an un")
+    sentence = clock_sentence(written.manifest)
+    title = textwrap.wrap(f"Clock check: {sentence}", _CLOCK_TITLE_CHARACTERS)
+    height = 1.15 + 1.9 * nrows + _TITLE_LINE_INCHES * (len(title) - 1)
     # one axes per row of months, each month a 0-24 h segment of it (a dozen axes cost
     # more than everything else drawn here); the segments keep the width of the panels
-    figure = drawing.figure(11.0, height, left=0.06, right=0.99, top=1 - 0.62 / height,
+    figure = drawing.figure(11.0, height, left=0.06, right=0.99,
+                            top=1 - (0.62 + _TITLE_LINE_INCHES * (len(title) - 1)) / height,
                             bottom=0.62 / height, hspace=0.42)
     rows = figure.subplots(nrows, 1, sharey=True, squeeze=False).ravel()
     has_potential = "potential_radiation" in series.columns
@@ -1392,8 +1407,7 @@ def figure_clock(drawing, written, interval) -> Figure:
     rows[-1].set_xlabel("Time of day [h] within each month (local standard time)", fontsize=8,
                         loc="left")
     rows[-1].legend(loc="upper right", bbox_to_anchor=(1.0, -0.1), ncols=2, fontsize=7.5)
-    sentence = clock_sentence(written.manifest)
-    figure.suptitle(f"Clock check: {sentence}", x=0.06, ha="left", fontsize=10.5)
+    figure.suptitle("\n".join(title), x=0.06, ha="left", fontsize=10.5)
     missing = "" if has_potential else " (no potential radiation column: measured Rg only)"
     caption = ("Measured Rg should rise and fall with the dashed potential radiation in every "
                "month; a curve shifted sideways by the same amount each month (the minutes in "

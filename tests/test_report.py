@@ -756,6 +756,30 @@ def test_the_clock_check_reads_as_a_sentence():
     assert figures.clock_sentence({"provenance": {}}) == "no clock check in this result folder"
 
 
+def test_a_long_clock_verdict_is_wrapped_inside_the_clock_figure(folder):
+    """The clock figure's title is the verdict sentence, which can be longer than the
+    figure is wide (a shift, its months' scatter and a problem): it ran past the right
+    edge and lost its end. It is wrapped on whole words and stays inside the figure, as
+    matplotlib's own window extents measure it."""
+    written = read_written(folder["directory"])
+    clock = {"status": "shifted", "shift_minutes": -60.0, "spread_minutes": 4.0,
+             "months_used": 12, "problems": ["set [site] utc_offset = 2 (the stamps look "
+                                             "one hour early against the sun all year)"]}
+    manifest = {**written.manifest,
+                "provenance": {**written.manifest.get("provenance", {}), "clock": clock}}
+    written = dataclasses.replace(written, manifest=manifest)
+    _, axes = _painted(figures.figure_clock, written, 30)
+    figure = axes[0].figure
+    title = figure._suptitle
+    assert " ".join(title.get_text().splitlines()) == (
+        f"Clock check: {figures.clock_sentence(manifest)}")
+    assert len(title.get_text().splitlines()) > 1
+    figure.canvas.draw()
+    extent = title.get_window_extent(figure.canvas.get_renderer())
+    assert extent.x1 <= figure.bbox.x1 and extent.y1 <= figure.bbox.y1
+    assert all(extent.y0 >= axis.get_window_extent().y1 for axis in axes)
+
+
 def test_partial_year_titles_name_the_first_record(partial):
     """A record starting 1 March is not titled "since 1 January" and is called partial.
     The figure and the summary write its first day alike ("1 Mar 2021"; they wrote "1
