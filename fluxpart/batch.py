@@ -1793,8 +1793,12 @@ def _shared_config_note(members, targets: dict) -> str:
 
 #: Settings that belong to one site by nature, left out of :func:`different_settings_sites`:
 #: the dates of its own harvests or fires, and the budget year (a southern site's starts
-#: in July while a northern one's starts in January, common practice).
-_SITE_OWN_SETTINGS = ("events", "year_start")
+#: in July while a northern one's starts in January, common practice). The seed too
+#: (polish49): it draws the bootstrap and Monte Carlo samples, not the method, so sites of
+#: different seeds are computed alike, each interval as valid as with any other seed; what
+#: an auditor needs is the seed of a rerun equal to its original's, which ``verify`` takes
+#: from the manifest and ``diff`` names where two folders differ in it.
+_SITE_OWN_SETTINGS = ("events", "year_start", "seed")
 
 
 def different_settings_sites(outcomes) -> list[str]:

@@ -69,6 +69,10 @@ class DiffReport:
         ``period_end`` differ; since review39).
     same_annual : int
         Annual values that are equal in both folders.
+    rounding_annual : tuple of (year, str)
+        Annual values that differ within floating-point rounding only, as ``verify``
+        judges it (:data:`fluxpart.verify.ROUNDING_TOLERANCE`): not listed as moves
+        (since polish49).
     """
 
     first: Path
@@ -76,6 +80,7 @@ class DiffReport:
     items: tuple = ()
     annual: pd.DataFrame = field(default_factory=pd.DataFrame)
     same_annual: int = 0
+    rounding_annual: tuple = ()
 
     @property
     def same(self) -> bool:
@@ -94,6 +99,8 @@ class DiffReport:
         if self.same:
             lines.append(f"same: input, settings, site, versions, code, platform and all "
                          f"{self.same_annual} annual values are equal")
+            if self.rounding_annual:
+                lines.append(_rounding_line(self.rounding_annual))
         else:
             lines.append(f"differ: {len(self.items)} recorded item(s) and {len(self.annual)} "
                          "annual value(s)")
@@ -129,8 +136,20 @@ class DiffReport:
                         shown[column] = shown[column].map(_absent_as_dash)
                 lines.append(shown.to_string(float_format=lambda v: f"{v:.6g}", na_rep="-"))
             lines.append(f"annual values equal in both: {self.same_annual}")
+            if self.rounding_annual:
+                lines.append(_rounding_line(self.rounding_annual))
         lines.append(f"Caution: {CAUTION}")
         return "\n".join(lines)
+
+
+def _rounding_line(cells) -> str:
+    """The line naming the annual values equal within rounding: their count and cells."""
+    from .verify import ROUNDING_TOLERANCE
+
+    named = ", ".join(f"{year} {column}" for year, column in cells[:5])
+    more = f" and {len(cells) - 5} more" if len(cells) > 5 else ""
+    return (f"annual values equal within rounding (relative difference at most "
+            f"{ROUNDING_TOLERANCE:g}, as verify judges it): {len(cells)} ({named}{more})")
 
 
 def _item_lines(label: str, first: str, second: str, width: int) -> list:
@@ -140,7 +159,10 @@ def _item_lines(label: str, first: str, second: str, width: int) -> list:
     metadata named) is wrapped on lines of its own and its values follow on the next
     lines, starting in the column the other items' values start in, each wrapped to
     :data:`TERMINAL_COLUMNS` (leftovers49: such a label pushed its values out of the
-    column). A platform fact (both values empty) names both values itself.
+    column). A word is never broken (polish49): a SHA-256 or a path split over two
+    lines had to be joined by an auditor comparing or copying it; a word longer than
+    the width runs past it on a line of its own. A platform fact (both values empty)
+    names both values itself.
     """
     import textwrap
 
@@ -149,12 +171,14 @@ def _item_lines(label: str, first: str, second: str, width: int) -> list:
     if len(label) <= width:
         return [f"  {label:<{width}}  first {first}  second {second}"]
     lines = textwrap.wrap(label, TERMINAL_COLUMNS, initial_indent="  ",
-                          subsequent_indent="    ", break_on_hyphens=False)
+                          subsequent_indent="    ", break_on_hyphens=False,
+                          break_long_words=False)
     indent = " " * (width + 4)
     for name, value in (("first", first), ("second", second)):
         lines += textwrap.wrap(f"{name} {value}", TERMINAL_COLUMNS, initial_indent=indent,
                                subsequent_indent=indent + " " * (len(name) + 1),
-                               break_on_hyphens=False) or [f"{indent}{name}"]
+                               break_on_hyphens=False, break_long_words=False
+                               ) or [f"{indent}{name}"]
     return lines
 
 
@@ -313,7 +337,22 @@ def _absent_as_dash(value):
     return "-" if value is None or (np.ndim(value) == 0 and pd.isna(value)) else value
 
 
-def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFrame, int]:
+def _rounding_cells(first: pd.DataFrame, second: pd.DataFrame, other: set) -> set:
+    """(year, column) cells of two annual tables equal within floating-point rounding,
+    judged as ``verify`` judges it (:func:`fluxpart.verify.within_rounding`), in the years
+    both hold over the same period."""
+    from .verify import within_rounding
+
+    years = [y for y in first.index.intersection(second.index) if y not in other]
+    if not years:
+        return set()
+    a, b = first.loc[years], second.loc[years]
+    return {(year, column) for column in a.columns if column in b.columns
+            for year, rounding in zip(years, within_rounding(column, a, b), strict=True)
+            if rounding}
+
+
+def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFrame, int, list]:
     rows, same = [], 0
     years = first.index.union(second.index)
     columns = list(first.columns) + [c for c in second.columns if c not in first.columns]
@@ -321,6 +360,10 @@ def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFra
     # is listed with both values but not differenced: "nee moved by -138 (-130 %)" read
     # as the setting's effect on one year (review39)
     other = _other_periods(first, second)
+    # float noise (a spread changed by 4.5e-13 between two runs of other settings) is no
+    # move: equal within the tolerance verify names rounding (review55)
+    noise = _rounding_cells(first, second, other)
+    rounding = []
     for year in years:
         for column in columns:
             a = first.at[year, column] if year in first.index and column in first.columns \
@@ -336,6 +379,9 @@ def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFra
                 if equal and a is not None and b is not None:
                     same += 1
                     continue
+                if (year, column) in noise:
+                    rounding.append((year, column))
+                    continue
                 change = fb - fa if year not in other else np.nan
                 relative = (change / abs(fa) if np.isfinite(fa) and fa != 0 and np.isfinite(change)
                             else np.nan)
@@ -349,7 +395,7 @@ def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFra
                              "change": np.nan, "relative": np.nan})
     table = pd.DataFrame(rows, columns=["year", "column", "first", "second", "change",
                                         "relative"])
-    return table.set_index(["year", "column"]), same
+    return table.set_index(["year", "column"]), same, rounding
 
 
 def diff_folders(first, second) -> DiffReport:
@@ -376,9 +422,9 @@ def diff_folders(first, second) -> DiffReport:
     b_manifest, b_tables = read_folder(second)
     items = _named_table_differences(_recorded_items(a_manifest, b_manifest), a_tables,
                                      b_tables)
-    annual, same = _annual_moves(a_tables["annual"], b_tables["annual"])
+    annual, same, rounding = _annual_moves(a_tables["annual"], b_tables["annual"])
     return DiffReport(first=first, second=second, items=tuple(items), annual=annual,
-                      same_annual=same)
+                      same_annual=same, rounding_annual=tuple(rounding))
 
 
 def command_diff(args) -> int:

@@ -728,9 +728,20 @@ def _hour_of_day(index: pd.DatetimeIndex, interval: int) -> np.ndarray:
     return ((index - index.normalize()) / pd.Timedelta(hours=1)).to_numpy() + interval / 120.0
 
 
+def day_text(moment, year: bool = True) -> str:
+    """A date as the report and its figures write it, in one style: "1 Jan 2021".
+
+    The day unpadded, the month's first three letters in English (not the locale's
+    ``%b``), the year unless `year` is False. The figures wrote "1 January 2021" and the
+    summary "01 Jan 2021" for the same day (review55).
+    """
+    moment = pd.Timestamp(moment)
+    text = f"{moment.day} {_MONTHS[moment.month - 1][:3]}"
+    return f"{text} {moment.year}" if year else text
+
+
 def _date_span(start: pd.Timestamp, end: pd.Timestamp) -> str:
-    return f"{start.day} {_MONTHS[start.month - 1]} {start.year} – {end.day} " \
-           f"{_MONTHS[end.month - 1]} {end.year}"
+    return f"{day_text(start)} – {day_text(end)}"
 
 
 def period_masks(written: Written) -> dict:
@@ -1075,12 +1086,12 @@ def figure_cumulative(drawing, written, interval) -> Figure:
     since = ""
     if len(periods) == 1:
         label, first, last, _, partial = next(iter(periods.values()))
-        since = f"since {first.day} {_MONTHS[first.month - 1]} {first.year}"
+        since = f"since {day_text(first)}"
         title = (f"Cumulative NEE {since} (below zero: net uptake)"
-                 + (f"; partial period, ends {last:%d %b %Y}" if partial else ""))
+                 + (f"; partial period, ends {day_text(last)}" if partial else ""))
     else:
         title = ("Cumulative NEE per budget period, each from its own first record "
-                 f"({', '.join(f'{s:%d %b %Y}' for s in starts)}; below zero: net uptake)")
+                 f"({', '.join(day_text(s) for s in starts)}; below zero: net uptake)")
     axis.set_title(title, loc="left")
     axis.legend(loc="upper left", bbox_to_anchor=(0.0, -0.06), ncols=2, fontsize=7.5,
                 frameon=False)
@@ -1273,9 +1284,13 @@ def clock_sentence(manifest: dict) -> str:
     if shift is not None:
         spread = clock.get("spread_minutes")
         months = clock.get("months_used")
+        # the spread is the scatter of the monthly shifts (scaled MAD), not an
+        # uncertainty of the shift: "± 4" read as one (review55)
+        notes = [f"median of {int(months)} months"] if isinstance(months, int) else []
+        if isinstance(spread, (int, float)):
+            notes.append(f"scatter across months {float(spread):.0f} min, not an uncertainty")
         parts.append(f"estimated shift {round(shift) + 0.0:+.0f} min"
-                     + (f" ± {float(spread):.0f}" if isinstance(spread, (int, float)) else "")
-                     + (f" over {int(months)} months" if isinstance(months, int) else ""))
+                     + (f" ({'; '.join(notes)})" if notes else ""))
     problems = clock.get("problems") or []
     if problems:
         parts.append(str(problems[0]))
@@ -1321,6 +1336,15 @@ def _centre_offset_minutes(measured, potential):
     return round(60.0 * (centres[0] - centres[1])) + 0.0  # + 0.0: no "-0"
 
 
+#: Characters of the clock figure's title per line: 10.5 pt text across the 11 inches
+#: from its left margin (about 0.55 of the point size per character (m), measured: 150
+#: characters ran past the edge).
+_CLOCK_TITLE_CHARACTERS = 125
+#: Height a wrapped title's further line takes [inches]: 10.5 pt at a line spacing of 1.2
+#: plus a margin.
+_TITLE_LINE_INCHES = 0.2
+
+
 def figure_clock(drawing, written, interval) -> Figure:
     series = written.timeseries
     hour = _hour_of_day(series.index, interval)
@@ -1328,10 +1352,16 @@ def figure_clock(drawing, written, interval) -> Figure:
     months = [m for m in range(1, 13) if (month == m).any()]
     ncols = 6 if len(months) > 4 else len(months)
     nrows = -(-len(months) // ncols)
-    height = 1.15 + 1.9 * nrows
+    # the verdict, its shift and a problem can be longer than the figure is wide: wrapped
+    # on whole words, the panels moved down by the lines added (a title cut at the edge
+    # lost its end, "not an un")
+    sentence = clock_sentence(written.manifest)
+    title = textwrap.wrap(f"Clock check: {sentence}", _CLOCK_TITLE_CHARACTERS)
+    height = 1.15 + 1.9 * nrows + _TITLE_LINE_INCHES * (len(title) - 1)
     # one axes per row of months, each month a 0-24 h segment of it (a dozen axes cost
     # more than everything else drawn here); the segments keep the width of the panels
-    figure = drawing.figure(11.0, height, left=0.06, right=0.99, top=1 - 0.62 / height,
+    figure = drawing.figure(11.0, height, left=0.06, right=0.99,
+                            top=1 - (0.62 + _TITLE_LINE_INCHES * (len(title) - 1)) / height,
                             bottom=0.62 / height, hspace=0.42)
     rows = figure.subplots(nrows, 1, sharey=True, squeeze=False).ravel()
     has_potential = "potential_radiation" in series.columns
@@ -1377,8 +1407,7 @@ def figure_clock(drawing, written, interval) -> Figure:
     rows[-1].set_xlabel("Time of day [h] within each month (local standard time)", fontsize=8,
                         loc="left")
     rows[-1].legend(loc="upper right", bbox_to_anchor=(1.0, -0.1), ncols=2, fontsize=7.5)
-    sentence = clock_sentence(written.manifest)
-    figure.suptitle(f"Clock check: {sentence}", x=0.06, ha="left", fontsize=10.5)
+    figure.suptitle("\n".join(title), x=0.06, ha="left", fontsize=10.5)
     missing = "" if has_potential else " (no potential radiation column: measured Rg only)"
     caption = ("Measured Rg should rise and fall with the dashed potential radiation in every "
                "month; a curve shifted sideways by the same amount each month (the minutes in "
@@ -1573,7 +1602,11 @@ def figure_night_respiration(drawing, written, interval) -> Figure:
     scatter = None
     for axis, (label, (_, first, last, mask, _)) in zip(axes, periods.items(), strict=False):
         rows = night & mask
-        axis.set_title(f"{label}: {first:%d %b %Y} – {last:%d %b %Y}", loc="left")
+        span = _date_span(first, last)
+        # a calendar year's label is the span's own year: "2023: 1 Jan 2023 – ..." said
+        # it twice (review55); a budget year's label stays before its span
+        axis.set_title(span if str(label) == str(first.year) == str(last.year)
+                       else f"{label}: {span}", loc="left")
         if not rows.any():
             _no_data(axis, "no measured night records")
             continue
@@ -1920,7 +1953,7 @@ def figure_light_response(drawing, written) -> Figure:
                                         written.setting("daytime_beta0_max"))
         if drawn:
             timeline.axhline(bound, color=_VERMILLION, linewidth=0.8, linestyle="--",
-                             label=f"β0 upper bound ({bound:g})")
+                             label=f"β0 upper bound ({bound:g} {_FLUX_UNIT})")
         timeline.set_ylim(-0.05 * top, 1.45 * top)
         timeline.set_ylabel(f"β0 [{_FLUX_UNIT}]", fontsize=8)
         drawing.few_ticks(timeline, x=0, y=4)
@@ -1971,7 +2004,8 @@ def figure_light_response(drawing, written) -> Figure:
         state, why = states.loc[position, "state"], states.loc[position, "why"]
         flagged = state != "accepted"
         why = textwrap.shorten(str(why), width=36, placeholder=" …")
-        axis.set_title(f"{start:%d %b} – {end:%d %b %Y}: {state}" + (f" ({why})" if why else ""),
+        axis.set_title(f"{day_text(start, year=False)} – {day_text(end)}: {state}"
+                       + (f" ({why})" if why else ""),
                        loc="left", color=_VERMILLION if flagged else _BLACK, fontsize=8.5)
         if flagged:
             for spine in axis.spines.values():

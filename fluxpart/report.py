@@ -49,6 +49,7 @@ from .figures import (
     FIGURES,
     Written,
     clock_sentence,
+    day_text,
     draw_figures,
     fill_category,
     interval_minutes,
@@ -228,7 +229,7 @@ def _interval_html(kind, low, high, decimals, key, label, row) -> str:
 
 
 def _period_heading(label, first, last, partial, row=None) -> str:
-    span = f"{first:%d %b %Y} – {last:%d %b %Y}"
+    span = f"{day_text(first)} – {day_text(last)}"
     # a budget year not starting on 1 January is labelled by the year it starts in, so a
     # record of January-June 2013 under year_start 07-01 read "2012: 01 Jan 2013 – 30 Jun
     # 2013"; the period itself is named before the records it holds (review39)
@@ -238,7 +239,7 @@ def _period_heading(label, first, last, partial, row=None) -> str:
             and (pd.Timestamp(start).month, pd.Timestamp(start).day) != (1, 1)):
         start, end = pd.Timestamp(start), pd.Timestamp(end)
         last_day = end - pd.Timedelta(days=1) if end == end.normalize() else end
-        period = (f"Budget year {_e(label)} ({start:%d %b %Y} – {last_day:%d %b %Y}): "
+        period = (f"Budget year {_e(label)} ({day_text(start)} – {day_text(last_day)}): "
                   f"records {span}")
     else:
         period = f"{_e(label)}: {span}"
@@ -490,7 +491,7 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                      f"{_period_heading(label, first, last, partial, row)}</h3>{headline}"
                      f"{flux_table}{unfitted}<ul>{''.join(facts)}</ul></div>")
     index = written.timeseries.index
-    record = (f'<p class="record-line">Record {index[0]:%d %b %Y} – {index[-1]:%d %b %Y}, '
+    record = (f'<p class="record-line">Record {day_text(index[0])} – {day_text(index[-1])}, '
               f"{interval_minutes(index)}-minute records. <strong>Clock check:</strong> "
               f"{_e(clock_sentence(written.manifest))}.</p>")
     return record + "".join(cards), combined_used
@@ -662,8 +663,8 @@ def _year_heading(annual: pd.DataFrame, year: int) -> str:
         return _e(year)
     start = pd.Timestamp(start)
     last = start + pd.DateOffset(years=1) - pd.Timedelta(days=1)
-    return (f'{_e(year)}<br><span class="small">{start:%d %b %Y} – '
-            f"{last:%d %b %Y}</span>")
+    return (f'{_e(year)}<br><span class="small">{day_text(start)} – '
+            f"{day_text(last)}</span>")
 
 
 def _annual_table(annual: pd.DataFrame, columns, metadata, table_id: str) -> str:
@@ -1293,7 +1294,7 @@ which values were recalled from memory and are not yet checked against the origi
 
 def _span(written: Written) -> str:
     index = written.timeseries.index
-    return f"{index[0]:%d %b %Y} – {index[-1]:%d %b %Y}"
+    return f"{day_text(index[0])} – {day_text(index[-1])}"
 
 
 # ------------------------------------------------------------------------------ entry points

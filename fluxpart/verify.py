@@ -98,7 +98,7 @@ from .resultdir import interrupted_writes
 from .store import file_sha256, read_table, require_owner_access
 
 __all__ = ["NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference", "VerifyReport",
-           "command_verify", "compare_tables", "field_differences", "verify"]
+           "command_verify", "compare_tables", "field_differences", "verify", "within_rounding"]
 
 #: Largest relative difference of a float value still classed as floating-point rounding.
 ROUNDING_TOLERANCE = 1e-6
@@ -332,8 +332,14 @@ class VerifyReport:
         platform = [e for e in self.environment if e.startswith("platform differs")]
         return platform[0][len("platform differs in "):] if platform else ""
 
-    def format(self) -> str:
-        """Return the report as text for the command line."""
+    def format(self, detail: bool = False) -> str:
+        """Return the report as text for the command line.
+
+        `detail`: print each differing metadata entry with both texts in full
+        (``verify --detail``); by default a table whose values are equal and whose
+        metadata differ is one line naming what differs and its columns
+        (:func:`metadata_summary`).
+        """
         count = len(self.tables)
         folder = shown_path(self.directory)
         if self.identical:
@@ -363,9 +369,11 @@ class VerifyReport:
             else:
                 wording = (", all of them in the tables' column descriptions; every value "
                            "equals its recomputation" if self.descriptions_only else "")
-                lines = [f"NOT reproduced: {len(failures)} difference(s) between "
+                shown = len(failures) if detail else _difference_count(failures)
+                lines = [f"NOT reproduced: {shown} difference(s) between "
                          f"{folder} and its recomputation{wording}:"]
-            lines += [f"  {d.describe()}" for d in failures + list(self.rounding)]
+            lines += [f"  {line}" for line in _described(failures + list(self.rounding),
+                                                         detail)]
             # a file changed after it was written is no effect of code: naming the code
             # alone as the likely cause beside it read as an all-clear (review43)
             edited = sorted({d.table for d in failures if d.kind in ("hash", "seal")})
@@ -409,6 +417,100 @@ def _is_description(key: str) -> bool:
     Parquet field), ``'fluxpart.columns.nee.description'``, ``'PANDAS_ATTRS.descriptions.nee'``."""
     return (key.endswith(" description") or key.endswith(".description")
             or key.startswith("PANDAS_ATTRS.descriptions."))
+
+
+#: Where a metadata key of :func:`metadata_differences` names a column: a field's own
+#: ``"<column> <what>"``, the fluxpart JSON's ``fluxpart.columns.<column>.<what>`` and the
+#: pandas copy's ``PANDAS_ATTRS.<what>s.<column>``.
+_METADATA_KEYS = (re.compile(r"PANDAS_ATTRS\.(?P<what>units|descriptions)\.(?P<column>.+)"),
+                  re.compile(r"fluxpart\.columns\.(?P<column>.+)\.(?P<what>\w+)"),
+                  re.compile(r"(?P<column>[^ ]+) (?P<what>type|unit|description)"))
+#: Column names a metadata line lists before the rest are counted.
+_METADATA_COLUMNS_LISTED = 8
+#: Longest metadata text a metadata line shows beside its column [characters]: a unit or
+#: an offset, not a description.
+_METADATA_TEXT_SHOWN = 40
+
+
+def _metadata_item(key: str) -> tuple[str, str | None]:
+    """(what differs in the plural, column or None) of a metadata key: the three copies of
+    one column's description are one item (``"descriptions"``, the column)."""
+    for pattern in _METADATA_KEYS:
+        match = pattern.fullmatch(str(key))
+        if match:
+            return match["what"].removesuffix("s") + "s", match["column"]
+    return str(key), None
+
+
+def metadata_summary(differences) -> list[str]:
+    """One line per table whose metadata differ (values equal), naming what and its columns.
+
+    Each column's description or unit is written three times (the Parquet field, the
+    fluxpart table metadata and the pandas copy, :mod:`fluxpart.store`): listing each
+    copy in full printed 18 lines of about 1400 characters for two reworded
+    descriptions (review55), where ``diff`` says it in one line per table.
+
+    Parameters
+    ----------
+    differences : iterable of Difference
+        The ``"metadata"`` entries (others are ignored).
+
+    Returns
+    -------
+    list of str
+        ``"<table>: metadata only (values equal): descriptions of a, b; units of c
+        (stored 'kg m-2', recomputed 'g m-2')"``: a table-level key
+        (``fluxpart.site.utc_offset``) named as itself, both texts where each is at most
+        :data:`_METADATA_TEXT_SHOWN` characters, at most
+        :data:`_METADATA_COLUMNS_LISTED` columns per item, then a count.
+    """
+    tables: dict = {}
+    for difference in differences:
+        if difference.kind != "metadata":
+            continue
+        what, column = _metadata_item(difference.column)
+        columns = tables.setdefault(difference.table, {}).setdefault(what, {})
+        # short texts (a unit, an offset) are shown: an edited "kg m-2" is the finding
+        texts = (difference.stored, difference.recomputed)
+        short = all(len(str(t)) <= _METADATA_TEXT_SHOWN for t in texts)
+        columns.setdefault(column, f" (stored {texts[0]!r}, recomputed {texts[1]!r})"
+                           if short else "")
+    lines = []
+    for table, items in tables.items():
+        parts = []
+        for what, columns in items.items():
+            if None in columns:
+                parts.append(f"{what}{columns[None]}")
+                continue
+            more = len(columns) - _METADATA_COLUMNS_LISTED
+            named = ", ".join(f"{column}{shown}" for column, shown in
+                              list(columns.items())[:_METADATA_COLUMNS_LISTED])
+            parts.append(f"{what} of {named}" + (f" and {more} more" if more > 0 else ""))
+        lines.append(f"{table}: metadata only (values equal): {'; '.join(parts)} (the texts: "
+                     "verify --detail)")
+    return lines
+
+
+def _described(differences: list, detail: bool) -> list[str]:
+    """The lines of `differences`: each described, or with `detail` False the metadata
+    entries of a table as one line (:func:`metadata_summary`) where its first one was."""
+    if detail:
+        return [d.describe() for d in differences]
+    lines, done = [], set()
+    for difference in differences:
+        if difference.kind != "metadata":
+            lines.append(difference.describe())
+        elif difference.table not in done:
+            done.add(difference.table)
+            lines += metadata_summary(d for d in differences if d.kind == "metadata"
+                                      and d.table == difference.table)
+    return lines
+
+
+def _difference_count(differences: list) -> int:
+    """Differences as listed without detail: one per column's metadata item, not per copy."""
+    items = {(d.table, *_metadata_item(d.column)) for d in differences if d.kind == "metadata"}
+    return len(items) + sum(d.kind != "metadata" for d in differences)
 
 
 # --------------------------------------------------------------------------- value comparison
@@ -528,6 +630,37 @@ def _is_standard_error(column, stored: pd.DataFrame) -> bool:
 
 def _is_float(series: pd.Series) -> bool:
     return pd.api.types.is_float_dtype(series.dtype)
+
+
+def within_rounding(column, first: pd.DataFrame, second: pd.DataFrame) -> np.ndarray:
+    """Rows where a float column of two tables of equal index differs, but only within
+    :data:`ROUNDING_TOLERANCE`, judged as :func:`compare_tables` judges it (relative to
+    the larger value, a near-zero value to :data:`NEAR_ZERO_SHARE` of the column, a
+    difference column to its operands).
+
+    Parameters
+    ----------
+    column : str
+        A column both tables hold.
+    first, second : pandas.DataFrame
+        Two tables of the same index (rows in the same order).
+
+    Returns
+    -------
+    numpy.ndarray of bool
+        Per row: the values are not bit for bit equal but equal within rounding. All
+        False where the column is no float column in both.
+
+    References
+    ----------
+    Higham, N. J. (2002). Accuracy and Stability of Numerical Algorithms, 2nd ed.,
+    SIAM, §1.7 (cancellation: a difference's rounding is its operands') (m).
+    """
+    left, right = first[column], second[column]
+    if not (_is_float(left) and _is_float(right)):
+        return np.zeros(len(left), dtype=bool)
+    differs, beyond, _ = _float_column(left, right, _operand_scale(column, first, second))
+    return differs & ~beyond
 
 
 def compare_tables(name: str, stored: pd.DataFrame, recomputed: pd.DataFrame) -> list:
@@ -1767,7 +1900,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
 
 
 def command_verify(args) -> int:
-    """``fluxpart verify DIR [--input FILE] [--config FILE] [--exact] [--quiet]``.
+    """``fluxpart verify DIR [--input FILE] [--config FILE] [--exact] [--quiet] [--detail]``.
 
     Returns
     -------
@@ -1781,7 +1914,7 @@ def command_verify(args) -> int:
     report = verify(args.directory, input_path=getattr(args, "input", None),
                     config_path=getattr(args, "config", None),
                     exact=bool(getattr(args, "exact", False)))
-    lines = report.format().splitlines()
+    lines = report.format(detail=bool(getattr(args, "detail", False))).splitlines()
     # --quiet: the verdict and the caution, without the per-column detail
     if getattr(args, "quiet", False):
         identity = [line for line in lines if line.startswith("result: ")]

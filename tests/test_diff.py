@@ -180,21 +180,53 @@ def test_a_long_label_wraps_and_its_values_start_in_the_others_column():
     """A label over 40 characters (a table's metadata named) was printed on one line
     with its values, out of the column of the others (leftovers49): it now takes lines
     of its own, each at most 80 characters (a terminal's common width), and its values
-    follow starting in the same column as every other item's."""
+    follow starting in the same column as every other item's. A word is never broken
+    (polish49; leftovers49 split a 70-character value over two lines): a SHA-256 split
+    in two must be joined by hand before it can be compared or copied, so a word longer
+    than the width runs past it, whole, on a line of its own."""
     from pathlib import Path
 
     from fluxpart.diff import DiffReport
 
     long = "parameters_nighttime_e0_annual.parquet metadata fluxpart_columns_and_units"
+    sha = "9f" * 32                                  # a SHA-256 in hex: 64 characters
     report = DiffReport(Path("a"), Path("b"), items=(
-        ("seed", "seed", "0", "7"), ("format", long, "x" * 30, "y" * 70),
+        ("seed", "seed", "0", "7"), ("format", long, "x" * 30, sha),
         ("setting", "events", "(absent)", '["2021-07-20"]')))
     lines = report.format().splitlines()[2:]
     column = lines[0].index("first ")
-    assert lines[3].index("first ") == column and lines[4].index("second ") == column
+    assert lines[3].index("first ") == column and lines[4].index("second") == column
     after = next(line for line in lines if "events" in line)
     assert after.index("first ") == column         # the item after it is still aligned
-    assert all(len(line) <= 80 for line in lines[:lines.index(after) + 1])
+    over = [line for line in lines[:lines.index(after) + 1] if len(line) > 80]
+    assert [line.strip() for line in over] == [sha]  # only the unbreakable word runs over
     assert " ".join(line.strip() for line in lines[1:3]) == f"format {long}"
-    assert "x" * 30 in lines[3] and "".join(line.strip() for line in lines[4:6]) == (
-        "second " + "y" * 70)
+    assert "x" * 30 in lines[3] and lines[4].strip() == "second" and lines[5].strip() == sha
+
+
+def test_float_noise_reads_equal_within_rounding_not_as_a_move():
+    """review55: a spread that changed by 4.5e-13 between two runs (1.87449 -> 1.87449)
+    was listed as a move. A float64 carries about 16 significant digits, and another
+    order of additions moves a year's sum in its last digits (Goldberg 1991, "What every
+    computer scientist should know about floating-point arithmetic" (m)): within the
+    relative tolerance verify calls rounding (1e-6) it reads as equal within rounding,
+    named and counted, while a change of 1e-5 relative is still a move."""
+    from pathlib import Path
+
+    import pandas as pd
+
+    from fluxpart.diff import DiffReport, _annual_moves
+    from fluxpart.verify import ROUNDING_TOLERANCE
+
+    spread = 1.874490123456789
+    first = pd.DataFrame({"nee": [-241.7], "gpp_daytime_ustar_spread": [spread],
+                          "reco_nighttime": [1178.8]}, index=pd.Index([2023], name="year"))
+    second = first.assign(gpp_daytime_ustar_spread=spread + 4.5e-13,
+                          reco_nighttime=1178.8 * (1 + 10 * ROUNDING_TOLERANCE))
+    moves, same, rounding = _annual_moves(first, second)
+    assert list(moves.index) == [(2023, "reco_nighttime")]         # 1e-5 relative: a move
+    assert rounding == [(2023, "gpp_daytime_ustar_spread")] and same == 1
+    text = DiffReport(Path("a"), Path("b"), annual=moves,
+                      same_annual=same, rounding_annual=tuple(rounding)).format()
+    assert "gpp_daytime_ustar_spread" not in text.split("annual values equal in both")[0]
+    assert "equal within rounding" in text and "1 (2023 gpp_daytime_ustar_spread)" in text

@@ -595,6 +595,10 @@ def test_light_response_window_parameters_show_their_units(folder):
     _, axes = _painted(figures.figure_night_respiration, written, 30)
     legends = [t.get_text() for a in axes if a.get_legend() for t in a.get_legend().get_texts()]
     assert legends and all("median Rref at 10 °C = " in t for t in legends if "E0 =" in t)
+    # a calendar year's panel is titled by its span alone: "2021: 01 Jan 2021 – ..." named
+    # the year twice (review55)
+    titles = [a.get_title(loc="left") for a in axes if a.get_title(loc="left")]
+    assert "1 Jan 2021 – 31 Dec 2021" in titles and not any(t.startswith("2021:") for t in titles)
 
 
 def _painted(painter, written, *args):
@@ -636,7 +640,7 @@ def test_light_response_timeline_keeps_the_windows_readable_and_names_the_bound(
 
     drawn, axes, timeline = timeline_of(written)
     assert timeline.get_ylim()[1] >= bound
-    assert f"β0 upper bound ({bound:g})" in [t.get_text() for t in
+    assert f"β0 upper bound ({bound:g} µmol m-2 s-1)" in [t.get_text() for t in
                                              timeline.get_legend().get_texts()]
     # every example panel framed in red is a window that is not plainly accepted, and the
     # caption says so for replaced windows too
@@ -737,24 +741,53 @@ def test_the_provenance_table_reads_as_words_not_python(folder):
 
 
 def test_the_clock_check_reads_as_a_sentence():
-    """The run's clock verdict (status, shift, spread, first problem) in plain words."""
+    """The run's clock verdict (status, shift, spread, first problem) in plain words. The
+    spread is the scaled MAD of the monthly shifts (`clock`), how far the months scatter,
+    not an uncertainty of the shift: "± 4" read as one (review55), it is named as such."""
     manifest = {"provenance": {"clock": {
         "status": "shifted", "shift_minutes": -60.0, "spread_minutes": 4.0, "months_used": 12,
         "problems": ["set [site] utc_offset = 2"]}}}
     assert figures.clock_sentence(manifest) == (
-        "Rg is SHIFTED against the sun (clock or UTC offset); estimated shift -60 min ± 4 over "
-        "12 months; set [site] utc_offset = 2")
+        "Rg is SHIFTED against the sun (clock or UTC offset); estimated shift -60 min (median "
+        "of 12 months; scatter across months 4 min, not an uncertainty); set [site] "
+        "utc_offset = 2")
     cannot = {"provenance": {"clock": {"status": "cannot_judge", "shift_minutes": None}}}
     assert figures.clock_sentence(cannot) == "the check could not judge this record"
     assert figures.clock_sentence({"provenance": {}}) == "no clock check in this result folder"
 
 
+def test_a_long_clock_verdict_is_wrapped_inside_the_clock_figure(folder):
+    """The clock figure's title is the verdict sentence, which can be longer than the
+    figure is wide (a shift, its months' scatter and a problem): it ran past the right
+    edge and lost its end. It is wrapped on whole words and stays inside the figure, as
+    matplotlib's own window extents measure it."""
+    written = read_written(folder["directory"])
+    clock = {"status": "shifted", "shift_minutes": -60.0, "spread_minutes": 4.0,
+             "months_used": 12, "problems": ["set [site] utc_offset = 2 (the stamps look "
+                                             "one hour early against the sun all year)"]}
+    manifest = {**written.manifest,
+                "provenance": {**written.manifest.get("provenance", {}), "clock": clock}}
+    written = dataclasses.replace(written, manifest=manifest)
+    _, axes = _painted(figures.figure_clock, written, 30)
+    figure = axes[0].figure
+    title = figure._suptitle
+    assert " ".join(title.get_text().splitlines()) == (
+        f"Clock check: {figures.clock_sentence(manifest)}")
+    assert len(title.get_text().splitlines()) > 1
+    figure.canvas.draw()
+    extent = title.get_window_extent(figure.canvas.get_renderer())
+    assert extent.x1 <= figure.bbox.x1 and extent.y1 <= figure.bbox.y1
+    assert all(extent.y0 >= axis.get_window_extent().y1 for axis in axes)
+
+
 def test_partial_year_titles_name_the_first_record(partial):
-    """A record starting 1 March is not titled "since 1 January" and is called partial."""
-    assert partial["cumulative"].title == "Cumulative NEE since 1 March 2021"
+    """A record starting 1 March is not titled "since 1 January" and is called partial.
+    The figure and the summary write its first day alike ("1 Mar 2021"; they wrote "1
+    March 2021" and "01 Mar 2021", review55)."""
+    assert partial["cumulative"].title == "Cumulative NEE since 1 Mar 2021"
     summary = partial["summary"]
     assert "partial period" in summary and "not an annual total" in summary
-    assert "01 Mar 2021 – 31 Dec 2021" in summary
+    assert "1 Mar 2021 – 31 Dec 2021" in summary
     _assert_not_blank(_pixels(partial["cumulative"].png), "partial-year cumulative figure")
 
 
@@ -963,8 +996,8 @@ def test_annual_table_headings_name_a_budget_years_days():
     table = report._annual_table(annual, ["nee"], {"nee": ("g C m-2", "net")}, "t")
     headings = re.findall(r'<th scope="col">(.*?)</th>', table)[3:]
     assert [re.sub(r"<[^>]+>", " ", h).split() for h in headings] == [
-        ["2020", "01", "Jul", "2020", "–", "30", "Jun", "2021"],
-        ["2021", "01", "Jul", "2021", "–", "30", "Jun", "2022"]]
+        ["2020", "1", "Jul", "2020", "–", "30", "Jun", "2021"],
+        ["2021", "1", "Jul", "2021", "–", "30", "Jun", "2022"]]
     calendar = annual.assign(period_start=pd.to_datetime(["2020-01-01", "2021-01-01"]),
                              period_end=pd.to_datetime(["2021-01-01", "2022-01-01"]))
     table = report._annual_table(calendar, ["nee"], {"nee": ("g C m-2", "net")}, "t")

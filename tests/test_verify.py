@@ -310,9 +310,10 @@ def test_resealed_unit_or_site_metadata_edit_is_not_reproduced(copy, capsys):
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
     assert out.startswith("NOT reproduced")
-    assert "daily: metadata 'nee unit' differs (values equal): stored 'kg m-2', recomputed " \
-           "'g m-2'" in out
-    assert "daily: metadata 'fluxpart.site.utc_offset' differs" in out
+    line = next(line for line in out.splitlines() if line.startswith("  daily: "))
+    assert line.startswith("  daily: metadata only (values equal): ")
+    assert "units of nee (stored 'kg m-2', recomputed 'g m-2')" in line
+    assert "fluxpart.site.utc_offset (stored " in line
     assert "annual" not in out.split("result:")[0]          # the other tables still match
     # a unit is no wording: not said to leave the numbers reproduced (review56)
     assert "column descriptions" not in out and "what this means" not in out
@@ -338,7 +339,8 @@ def test_a_description_reworded_by_other_code_names_the_code_as_likely_cause(
                    reseal=True)
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
-    assert "daily: metadata 'nee description' differs (values equal)" in out
+    assert "daily: metadata only (values equal): descriptions of nee (the texts: verify " \
+           "--detail)" in out
     assert "likely cause: the product's code differs" in out
     # and says at the head and after the list that only descriptions differ, what that
     # means for the numbers and what to do (0.31.0's folders under 0.32.0: 45 such lines
@@ -349,6 +351,40 @@ def test_a_description_reworded_by_other_code_names_the_code_as_likely_cause(
     assert ("what this means: the numbers are reproduced; only the words describing columns "
             "differ (no unit, site or setting), as the running release words them") in out
     assert "verify with the release that wrote the result" in out
+    # --detail: the description in full, each copy that differs (review55: by default
+    # three copies of each description in full read as 18 lines of ~1400 characters)
+    assert main(["verify", "--detail", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert "daily: metadata 'nee description' differs (values equal): stored 'worded " \
+           "otherwise', recomputed" in out
+
+def test_the_copies_of_a_reworded_description_are_one_item_per_column():
+    """A description is written three times per column (the Parquet field, the fluxpart
+    table metadata, the pandas copy): verify printed each in full (review55: 18 lines of
+    ~1400 characters for two columns). Without --detail a table is one line naming what
+    differs and the columns, the count one per column; short texts are shown."""
+    from fluxpart.verify import Difference, VerifyReport
+
+    long_old, long_new = "1 sigma: " + "a" * 1400, "1 sigma: " + "b" * 1400
+    found = [Difference("annual", "metadata", column=key, stored=long_old,
+                        recomputed=long_new)
+             for column in ("gpp_daytime_sigma", "reco_daytime_sigma")
+             for key in (f"PANDAS_ATTRS.descriptions.{column}",
+                         f"fluxpart.columns.{column}.description", f"{column} description")]
+    found.append(Difference("annual", "metadata", column="nee unit", stored="kg m-2",
+                            recomputed="g m-2"))
+    report = VerifyReport(directory=Path("out"), source="run", tables=("annual",),
+                          differences=tuple(found))
+    text = report.format()
+    assert text.splitlines()[0].startswith("NOT reproduced: 3 difference(s)")
+    assert ("  annual: metadata only (values equal): descriptions of gpp_daytime_sigma, "
+            "reco_daytime_sigma; units of nee (stored 'kg m-2', recomputed 'g m-2') (the "
+            "texts: verify --detail)") in text.splitlines()
+    assert long_old not in text and max(map(len, text.splitlines())) < 400
+    detailed = report.format(detail=True)
+    assert detailed.splitlines()[0].startswith("NOT reproduced: 7 difference(s)")
+    assert detailed.count(long_new) == 6
+
 
 def _rewrite_metadata(folder, table, change):
     """Rewrite a table's file metadata by `change(dict)`, its hash and the seal forged."""
@@ -396,8 +432,8 @@ def test_an_edited_unit_in_the_pandas_copy_is_not_reproduced(copy, capsys):
     assert main(["verify", str(folder)]) == 1
     out = capsys.readouterr().out
     assert out.startswith("NOT reproduced")
-    assert "daily: metadata 'PANDAS_ATTRS.units.nee' differs (values equal): stored " \
-           "'kg m-2', recomputed 'g m-2'" in out
+    assert "daily: metadata only (values equal): units of nee (stored 'kg m-2', recomputed " \
+           "'g m-2')" in out
 
 
 def test_last_bit_change_is_rounding_and_exact_refuses_it(copy, capsys):
