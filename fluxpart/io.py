@@ -2442,6 +2442,9 @@ def _case_hint(path: Path) -> str:
 #: holds (gzip RFC 1952, bzip2, xz (m)), and their modules.
 _COMPRESSED = ((b"\x1f\x8b", "gzip", gzip), (b"BZh", "bzip2", bz2),
                (b"\xfd7zXZ\x00", "xz", lzma))
+#: Compression layers taken off one file: a table compressed twice by accident (a portal
+#: gzipping a download already gzipped) is read; more layers than that are no accident.
+_COMPRESSION_LAYERS = 3
 
 
 def _decompressed(data: bytes, path: Path) -> bytes:
@@ -2451,24 +2454,30 @@ def _decompressed(data: bytes, path: Path) -> bytes:
     bytes, whatever its name), its hash still the compressed file's; so is a zip
     archive of one file (:func:`fluxpart._validate.single_zip_member`, layouts36). A tar
     archive inside (``.tar.gz``: several files) is refused by name, as are zip archives
-    of several files.
+    of several files. A file compressed twice (``.csv.gz.gz``, or a portal's gzip of a
+    file already gzipped) is the table too: up to :data:`_COMPRESSION_LAYERS` layers are
+    taken off (layouts41; refused before as "gzip-compressed, not a text table").
     """
     if data.startswith(b"PK\x03\x04"):
         data = single_zip_member(data) or data
-    for magic, name, module in _COMPRESSED:
-        if data.startswith(magic) and (name != "bzip2" or data[4:10] == b"1AY&SY"):
-            try:
-                data = module.decompress(data)
-            except (OSError, EOFError, ValueError, lzma.LZMAError) as error:
-                raise InputFileError(
-                    f"input file {str(path)!r} is {name}-compressed but cannot be "
-                    f"decompressed ({error}): a copy cut short? Copy it again") from None
-            if data[257:262] == b"ustar":
-                raise InputFileError(
-                    f"[input] path: {str(path)!r} is a {name}-compressed tar archive (files "
-                    "packed together), not a text table; unpack it and point [input] path "
-                    "at the text files")
+    for _ in range(_COMPRESSION_LAYERS):
+        layer = next(((name, module) for magic, name, module in _COMPRESSED
+                      if data.startswith(magic)
+                      and (name != "bzip2" or data[4:10] == b"1AY&SY")), None)
+        if layer is None:
             return data
+        name, module = layer
+        try:
+            data = module.decompress(data)
+        except (OSError, EOFError, ValueError, lzma.LZMAError) as error:
+            raise InputFileError(
+                f"input file {str(path)!r} is {name}-compressed but cannot be "
+                f"decompressed ({error}): a copy cut short? Copy it again") from None
+        if data[257:262] == b"ustar":
+            raise InputFileError(
+                f"[input] path: {str(path)!r} is a {name}-compressed tar archive (files "
+                "packed together), not a text table; unpack it and point [input] path "
+                "at the text files")
     return data
 
 
