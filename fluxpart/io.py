@@ -2720,7 +2720,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                                            int(found.group(1)), delimiter,
                                            rows_before_header + rows_after_header + 2))
             raise InputFileError(changed or _parser_message(path, delimiter, str(error),
-                                                            header_line)) from None
+                                                            header_line, text)) from None
         # a quote opened and never closed: the parser names no line of the file
         text_lines = text.splitlines()
         number = _unclosed_quote_line(parsed.splitlines())
@@ -3119,12 +3119,42 @@ def _blank_rows(raw: pd.DataFrame) -> np.ndarray:
     return blank
 
 
-def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "") -> str:
+#: Marks that open a remark a logger or an observer writes after a record's last value
+#: ("# batt low", "// fan off", "! wet"; common practice).
+_REMARK_MARKS = ("#", "//", "!")
+
+
+def _remark_beyond_header(text: str, width: int, delimiter: str) -> str:
+    """Name fields written after a record's last named column that open with a remark
+    mark (",# batt low"), with how many lines hold one, or "".
+
+    Such a remark is no column: the records it follows may be meant kept or dropped, as
+    the values a comment follows in a cell (:func:`_numbers`), so it is named, not
+    read past (layouts41: "a delimiter inside a value, or two records run together?").
+    """
+    if not text or delimiter == _WHITESPACE:
+        return ""
+    remarks = [parts[width].strip() for parts in
+               (line.split(delimiter, width) for line in text.splitlines())
+               if len(parts) > width and parts[width].lstrip().startswith(_REMARK_MARKS)]
+    if not remarks:
+        return ""
+    return (f"the fields after the last named column hold a remark ({remarks[0]!r} and "
+            f"{len(remarks) - 1} more line(s)), not a value: the records remarked may be "
+            "meant kept or dropped, two readings with other budgets; in a copy of the file "
+            "remove the remarks (values kept) or write those records' values as a missing "
+            "code (dropped)")
+
+
+def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "",
+                    text: str = "") -> str:
     """The tokenizer's complaint as one plain line naming the file and line.
 
     A header line without `delimiter` that holds another separator is a file of another
     delimiter whose data lines split at decimal commas, as many fields as each line's
-    values hold commas (a line with a missing code holds fewer than the next one)."""
+    values hold commas (a line with a missing code holds fewer than the next one). Fields
+    beyond the header that open with a remark mark are named as a remark
+    (:func:`_remark_beyond_header`)."""
     if "out of memory" in error:
         # the tokenizer's buffer allocation failed (ulimit -v, a container's or batch job's
         # memory limit): the file was blamed, with its delimiter
@@ -3144,6 +3174,10 @@ def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "
             # the parser's expected count is the first data line's where that line holds
             # more fields than the header (it took the extra ones as a row index)
             expected = field_count(header_line, delimiter)
+        remark = _remark_beyond_header(text, int(expected), delimiter)
+        if remark:
+            return (f"input file {str(path)!r}: line {line} has {saw} fields where the header "
+                    f"has {expected}: {remark}")
         return (f"input file {str(path)!r}: line {line} has {saw} fields where the header has "
                 f"{expected} (delimiter {delimiter!r}); a delimiter inside a value, or two "
                 "records run together after an interrupted write? Correct or delete that line "

@@ -52,3 +52,19 @@ def test_more_layers_or_an_inner_layer_cut_short_are_refused(tmp_path):
     (tmp_path / "cut.csv.gz").write_bytes(gzip.compress(inner[: len(inner) // 2], mtime=0))
     with pytest.raises(InputFileError, match="gzip-compressed but cannot be decompressed"):
         _read(tmp_path / "cut.csv.gz")
+
+
+def test_a_remark_after_the_last_field_is_named_as_a_remark(tmp_path):
+    """Refused before layouts41 as "a delimiter inside a value, or two records run
+    together?"; a remark field after a record (common practice: "# batt low") leaves
+    the record kept or dropped, as a comment in a cell does, so it stays refused, named."""
+    frame, _ = _records()
+    lines = frame.to_csv(index=False).splitlines()
+    lines[3] += ",# batt low"
+    lines[7] += ",# batt low"
+    (tmp_path / "t.csv").write_text("\n".join(lines) + "\n")
+    with pytest.raises(InputFileError) as caught:
+        _read(tmp_path / "t.csv")
+    message = str(caught.value)
+    assert "line 4 has" in message and "hold a remark ('# batt low' and 1 more line(s))" \
+        in message and "\n" not in message
