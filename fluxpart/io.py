@@ -2455,12 +2455,13 @@ def _decompressed(data: bytes, path: Path) -> bytes:
     archive of one file (:func:`fluxpart._validate.single_zip_member`, layouts36). A tar
     archive inside (``.tar.gz``: several files) is refused by name, as are zip archives
     of several files. A file compressed twice (``.csv.gz.gz``, or a portal's gzip of a
-    file already gzipped) is the table too: up to :data:`_COMPRESSION_LAYERS` layers are
-    taken off (layouts41; refused before as "gzip-compressed, not a text table").
+    file already gzipped, or of a zip of one table) is the table too: up to
+    :data:`_COMPRESSION_LAYERS` layers are taken off (layouts41; refused before as
+    "gzip-compressed, not a text table" or "a zip archive holding 1 file(s)").
     """
-    if data.startswith(b"PK\x03\x04"):
-        data = single_zip_member(data) or data
     for _ in range(_COMPRESSION_LAYERS):
+        if data.startswith(b"PK\x03\x04"):
+            data = single_zip_member(data) or data
         layer = next(((name, module) for magic, name, module in _COMPRESSED
                       if data.startswith(magic)
                       and (name != "bzip2" or data[4:10] == b"1AY&SY")), None)

@@ -10,6 +10,8 @@ reference. Everything else is invented known truth: the records as written.
 
 import bz2
 import gzip
+import io
+import zipfile
 
 import numpy as np
 import pytest
@@ -27,13 +29,18 @@ def _read(path):
 
 def test_a_table_compressed_twice_is_the_table(tmp_path):
     """Refused before layouts41 ("gzip-compressed, not a text table; decompress it"),
-    whatever its name; a gzip of a bzip2 file likewise."""
+    whatever its name; a gzip of a bzip2 file likewise, and a gzip of a zip of one table
+    (refused as "a zip archive holding 1 file(s)")."""
     frame, ends = _records()
     data = frame.to_csv(index=False).encode()
+    archive = io.BytesIO()
+    with zipfile.ZipFile(archive, "w") as zipped:
+        zipped.writestr("tower.csv", data)
     twice = gzip.compress(gzip.compress(data, mtime=0), mtime=0)
     assert twice[:2] == b"\x1f\x8b" and gzip.decompress(twice)[:2] == b"\x1f\x8b"  # RFC 1952
     for name, packed in (("t.csv.gz.gz", twice), ("t.csv.gz", twice),
-                         ("t.csv", gzip.compress(bz2.compress(data), mtime=0))):
+                         ("t.csv", gzip.compress(bz2.compress(data), mtime=0)),
+                         ("t.zip.gz", gzip.compress(archive.getvalue(), mtime=0))):
         (tmp_path / name).write_bytes(packed)
         read, _ = _read(tmp_path / name)
         assert len(read) == len(ends)

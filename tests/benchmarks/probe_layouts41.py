@@ -386,6 +386,64 @@ def monthly_files_each_in_another_order_and_case_of_extension(folder):
     toml(folder, "q_*.[cC][sS][vV]")
 
 
+# --------------------------------------------------------------------------- more of the kinds
+@case
+def cr_cr_lf_line_ends(folder):
+    """CRLF turned into CR CR LF by a second conversion on a transfer."""
+    p40.edited(folder, ending="\r\r\n")
+
+
+@case
+def names_differing_only_by_a_trailing_blank(folder):
+    raw, _ = table()
+    raw.insert(4, "air_c ", raw["air_c"].str.replace(r"^(-?\d)", r"\g<1>1", regex=True),
+               allow_duplicates=True)
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv")
+    return "refused"
+
+
+@case
+def upper_case_copy_mapped(folder):
+    raw, _ = table()
+    raw.insert(4, "AIR_C", raw["air_c"])
+    raw["air_c"] = raw["air_c"].str.replace(r"^(-?\d)", r"\g<1>1", regex=True)
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", columns=MAP | {"tair": "AIR_C"})
+
+
+@case
+def flags_written_as_exponents(folder):
+    raw, _ = table()
+    raw["co2_grade"] = [f"{int(v):.1E}" for v in raw["co2_grade"]]
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv")
+
+
+@case
+def count_column_grouped_with_no_break_spaces(folder):
+    raw, _ = table()
+    rng = np.random.default_rng(41)
+    raw.insert(8, "n_samples", [f"{v:,}".replace(",", "\u00a0")
+                                for v in rng.integers(17000, 18001, len(raw))])
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv")
+
+
+@case
+def gzip_of_a_zip_of_one_table(folder):
+    data = gzip.compress(p40.zipped([("quillmoor_2021.csv", p40.plain_bytes())]), mtime=0)
+    (folder / "t.zip.gz").write_bytes(data)
+    toml(folder, "t.zip.gz")
+
+
+@case
+def zip_of_one_gzipped_table(folder):
+    data = p40.zipped([("quillmoor_2021.csv.gz", gzip.compress(p40.plain_bytes(), mtime=0))])
+    (folder / "t.zip").write_bytes(data)
+    toml(folder, "t.zip")
+
+
 def judge(name, folder, base_tables, cli):
     """The case's state as ``probe_layouts40.judge`` finds it (a returned pair of rows and
     variables is the cells the file leaves out, missing in the truth)."""
