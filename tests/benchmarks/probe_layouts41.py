@@ -48,12 +48,28 @@ def stamp_split(folder, cells, time_format, name="t.csv", sep=",", **inputs):
     toml(folder, name, time_column=list(cells(ends)), time_format=time_format, **inputs)
 
 
+def saved(folder, raw, name="t.csv", sep=",", **inputs):
+    """`raw` written to folder/`name` with fields split by `sep`, read with `inputs`."""
+    write(folder / name, lines(raw, sep=sep))
+    toml(folder, name, **({"delimiter": sep} if sep != "," else {}) | inputs)
+
+
+def counted(folder, form, sep=",", name="t.csv", **inputs):
+    """The example with an unmapped count column "n_samples" of 17000-18000 written as
+    `form(count)`, its other cells as `sep` and `inputs` (a decimal comma) write them."""
+    raw, _ = table()
+    if inputs.get("decimal") == ",":
+        raw = raw.apply(lambda c: c.str.replace(".", ",", regex=False))
+    rng = np.random.default_rng(41)
+    raw.insert(8, "n_samples", [form(v) for v in rng.integers(17000, 18001, len(raw))])
+    saved(folder, raw, name, sep, **inputs)
+
+
 def added(folder, position, name, values, **inputs):
     """The example with a column `name` of `values` inserted at `position`."""
     raw, _ = table()
     raw.insert(position, name, values, allow_duplicates=True)
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", **inputs)
+    saved(folder, raw, **inputs)
 
 
 def numbers(raw, columns, form):
@@ -123,8 +139,7 @@ def date_and_clock_with_h_between(folder):
 def two_blanks_between_date_and_clock(folder):
     raw, ends = table()
     raw["stamp"] = stamps(ends, "%Y-%m-%d  %H:%M")
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M")
+    saved(folder, raw, time_format="%Y-%m-%d %H:%M")
 
 
 @case
@@ -135,8 +150,7 @@ def quarter_hour_records(folder):
     early["stamp"] = stamps(ends - pd.Timedelta("15min"), "%Y%m%d%H%M")
     both = pd.concat([early, raw]).iloc[np.argsort(np.r_[np.arange(len(raw)) * 2,
                                                          np.arange(len(raw)) * 2 + 1])]
-    write(folder / "t.csv", lines(both))
-    toml(folder, "t.csv")
+    saved(folder, both)
     return "refused"
 
 
@@ -147,8 +161,7 @@ def two_nee_columns_raw_one_mapped(folder):
     values = pd.to_numeric(raw["co2_net"])
     raw.insert(1, "co2_raw", np.where(values == -9999, "-9999",
                                       [f"{v * 0.9 + 0.3:.3f}" for v in values]))
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    saved(folder, raw)
 
 
 @case
@@ -157,8 +170,7 @@ def two_nee_columns_storage_corrected_mapped(folder):
     values = pd.to_numeric(raw["co2_net"])
     raw.insert(2, "co2_net_stor", raw["co2_net"])
     raw["co2_net"] = np.where(values == -9999, "-9999", [f"{v - 0.4:.3f}" for v in values])
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", columns=MAP | {"nee": "co2_net_stor"})
+    saved(folder, raw, columns=MAP | {"nee": "co2_net_stor"})
 
 
 @case
@@ -174,16 +186,14 @@ def name_written_twice_unmapped_sensor(folder):
 def names_differing_only_by_case(folder):
     raw, _ = table()
     raw.insert(4, "AIR_C", raw["air_c"].str.replace(r"^(-?\d)", r"\g<1>1", regex=True))
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    saved(folder, raw)
 
 
 @case
 def mapped_names_in_another_case(folder):
     raw, _ = table()
     raw.columns = [c.upper() for c in raw.columns]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    saved(folder, raw)
     return "refused"
 
 
@@ -199,32 +209,18 @@ def empty_unnamed_column_in_the_middle(folder):
 
 @case
 def count_column_with_thousands_separators_quoted(folder):
-    raw, _ = table()
-    rng = np.random.default_rng(41)
-    raw.insert(8, "n_samples", [f'"{v:,}"' for v in rng.integers(17000, 18001, len(raw))])
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    counted(folder, lambda v: f'"{v:,}"')
 
 
 @case
 def count_column_with_thousands_separators_tab_file(folder):
-    raw, _ = table()
-    rng = np.random.default_rng(41)
-    raw.insert(8, "n_samples", [f"{v:,}" for v in rng.integers(17000, 18001, len(raw))])
-    write(folder / "t.txt", lines(raw, sep="\t"))
-    toml(folder, "t.txt", delimiter="\t")
+    counted(folder, lambda v: f"{v:,}", sep="\t", name="t.txt")
 
 
 @case
 def count_column_point_grouped_in_decimal_comma_file(folder):
     """An unmapped count grouped with points ("17.523") beside decimal commas."""
-    raw, _ = table()
-    rng = np.random.default_rng(41)
-    raw = raw.apply(lambda c: c.str.replace(".", ",", regex=False))
-    raw.insert(8, "n_samples", [f"{v:,}".replace(",", ".")
-                                for v in rng.integers(17000, 18001, len(raw))])
-    write(folder / "t.csv", lines(raw, sep=";"))
-    toml(folder, "t.csv", delimiter=";", decimal=",")
+    counted(folder, lambda v: f"{v:,}".replace(",", "."), sep=";", decimal=",")
 
 
 # --------------------------------------------------------------------------- fields
@@ -250,16 +246,14 @@ def exponents_lower_case_and_plus_signs_mixed(folder):
     forms = [lambda v: f"{v:.4e}", lambda v: f"{v:+g}", lambda v: f"{v:.6E}"]
     raw = numbers(raw, VALUE_COLUMNS, lambda v, c: c if len(c) > 8 else
                   forms[int(abs(v) * 1000) % 3](float(c)))
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    saved(folder, raw)
 
 
 @case
 def numbers_with_a_trailing_unit(folder):
     raw, _ = table()
     raw = numbers(raw, ["air_c", "soil_c"], lambda v, c: c + "C")
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    saved(folder, raw)
     return "refused"
 
 
@@ -267,8 +261,7 @@ def numbers_with_a_trailing_unit(folder):
 def percent_sign_after_humidity(folder):
     raw, _ = table()
     raw = numbers(raw, ["humid"], lambda v, c: c + "%")
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    saved(folder, raw)
     return "refused"
 
 
@@ -284,8 +277,7 @@ def semicolon_decimal_point_delimiter_undeclared(folder):
 def tab_file_double_tabs_for_empty_fields(folder):
     raw, _ = table()
     raw = raw.replace("-9999", "")
-    write(folder / "t.txt", lines(raw, sep="\t"))
-    toml(folder, "t.txt", delimiter="\t")
+    saved(folder, raw, "t.txt", "\t")
 
 
 @case
@@ -317,8 +309,7 @@ def leading_zeros_and_plus_on_every_value(folder):
     raw, _ = table()
     raw = numbers(raw, VALUE_COLUMNS, lambda v, c: ("-" if c.startswith("-") else "+")
                   + c.lstrip("-").rjust(8, "0"))
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    saved(folder, raw)
 
 
 # --------------------------------------------------------------------------- encodings, archives
@@ -398,8 +389,7 @@ def names_differing_only_by_a_trailing_blank(folder):
     raw, _ = table()
     raw.insert(4, "air_c ", raw["air_c"].str.replace(r"^(-?\d)", r"\g<1>1", regex=True),
                allow_duplicates=True)
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    saved(folder, raw)
     return "refused"
 
 
@@ -408,26 +398,19 @@ def upper_case_copy_mapped(folder):
     raw, _ = table()
     raw.insert(4, "AIR_C", raw["air_c"])
     raw["air_c"] = raw["air_c"].str.replace(r"^(-?\d)", r"\g<1>1", regex=True)
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", columns=MAP | {"tair": "AIR_C"})
+    saved(folder, raw, columns=MAP | {"tair": "AIR_C"})
 
 
 @case
 def flags_written_as_exponents(folder):
     raw, _ = table()
     raw["co2_grade"] = [f"{int(v):.1E}" for v in raw["co2_grade"]]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    saved(folder, raw)
 
 
 @case
 def count_column_grouped_with_no_break_spaces(folder):
-    raw, _ = table()
-    rng = np.random.default_rng(41)
-    raw.insert(8, "n_samples", [f"{v:,}".replace(",", "\u00a0")
-                                for v in rng.integers(17000, 18001, len(raw))])
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    counted(folder, lambda v: f"{v:,}".replace(",", "\u00a0"))
 
 
 @case
