@@ -2442,6 +2442,9 @@ def _case_hint(path: Path) -> str:
 #: holds (gzip RFC 1952, bzip2, xz (m)), and their modules.
 _COMPRESSED = ((b"\x1f\x8b", "gzip", gzip), (b"BZh", "bzip2", bz2),
                (b"\xfd7zXZ\x00", "xz", lzma))
+#: Compression layers taken off one file: a table compressed twice by accident (a portal
+#: gzipping a download already gzipped) is read; more layers than that are no accident.
+_COMPRESSION_LAYERS = 3
 
 
 def _decompressed(data: bytes, path: Path) -> bytes:
@@ -2451,24 +2454,31 @@ def _decompressed(data: bytes, path: Path) -> bytes:
     bytes, whatever its name), its hash still the compressed file's; so is a zip
     archive of one file (:func:`fluxpart._validate.single_zip_member`, layouts36). A tar
     archive inside (``.tar.gz``: several files) is refused by name, as are zip archives
-    of several files.
+    of several files. A file compressed twice (``.csv.gz.gz``, or a portal's gzip of a
+    file already gzipped, or of a zip of one table) is the table too: up to
+    :data:`_COMPRESSION_LAYERS` layers are taken off (layouts41; refused before as
+    "gzip-compressed, not a text table" or "a zip archive holding 1 file(s)").
     """
-    if data.startswith(b"PK\x03\x04"):
-        data = single_zip_member(data) or data
-    for magic, name, module in _COMPRESSED:
-        if data.startswith(magic) and (name != "bzip2" or data[4:10] == b"1AY&SY"):
-            try:
-                data = module.decompress(data)
-            except (OSError, EOFError, ValueError, lzma.LZMAError) as error:
-                raise InputFileError(
-                    f"input file {str(path)!r} is {name}-compressed but cannot be "
-                    f"decompressed ({error}): a copy cut short? Copy it again") from None
-            if data[257:262] == b"ustar":
-                raise InputFileError(
-                    f"[input] path: {str(path)!r} is a {name}-compressed tar archive (files "
-                    "packed together), not a text table; unpack it and point [input] path "
-                    "at the text files")
+    for _ in range(_COMPRESSION_LAYERS):
+        if data.startswith(b"PK\x03\x04"):
+            data = single_zip_member(data) or data
+        layer = next(((name, module) for magic, name, module in _COMPRESSED
+                      if data.startswith(magic)
+                      and (name != "bzip2" or data[4:10] == b"1AY&SY")), None)
+        if layer is None:
             return data
+        name, module = layer
+        try:
+            data = module.decompress(data)
+        except (OSError, EOFError, ValueError, lzma.LZMAError) as error:
+            raise InputFileError(
+                f"input file {str(path)!r} is {name}-compressed but cannot be "
+                f"decompressed ({error}): a copy cut short? Copy it again") from None
+        if data[257:262] == b"ustar":
+            raise InputFileError(
+                f"[input] path: {str(path)!r} is a {name}-compressed tar archive (files "
+                "packed together), not a text table; unpack it and point [input] path "
+                "at the text files")
     return data
 
 
@@ -2711,7 +2721,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                                            int(found.group(1)), delimiter,
                                            rows_before_header + rows_after_header + 2))
             raise InputFileError(changed or _parser_message(path, delimiter, str(error),
-                                                            header_line)) from None
+                                                            header_line, text)) from None
         # a quote opened and never closed: the parser names no line of the file
         text_lines = text.splitlines()
         number = _unclosed_quote_line(parsed.splitlines())
@@ -3110,12 +3120,42 @@ def _blank_rows(raw: pd.DataFrame) -> np.ndarray:
     return blank
 
 
-def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "") -> str:
+#: Marks that open a remark a logger or an observer writes after a record's last value
+#: ("# batt low", "// fan off", "! wet"; common practice).
+_REMARK_MARKS = ("#", "//", "!")
+
+
+def _remark_beyond_header(text: str, width: int, delimiter: str) -> str:
+    """Name fields written after a record's last named column that open with a remark
+    mark (",# batt low"), with how many lines hold one, or "".
+
+    Such a remark is no column: the records it follows may be meant kept or dropped, as
+    the values a comment follows in a cell (:func:`_numbers`), so it is named, not
+    read past (layouts41: "a delimiter inside a value, or two records run together?").
+    """
+    if not text or delimiter == _WHITESPACE:
+        return ""
+    remarks = [parts[width].strip() for parts in
+               (line.split(delimiter, width) for line in text.splitlines())
+               if len(parts) > width and parts[width].lstrip().startswith(_REMARK_MARKS)]
+    if not remarks:
+        return ""
+    return (f"the fields after the last named column hold a remark ({remarks[0]!r} and "
+            f"{len(remarks) - 1} more line(s)), not a value: the records remarked may be "
+            "meant kept or dropped, two readings with other budgets; in a copy of the file "
+            "remove the remarks (values kept) or write those records' values as a missing "
+            "code (dropped)")
+
+
+def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "",
+                    text: str = "") -> str:
     """The tokenizer's complaint as one plain line naming the file and line.
 
     A header line without `delimiter` that holds another separator is a file of another
     delimiter whose data lines split at decimal commas, as many fields as each line's
-    values hold commas (a line with a missing code holds fewer than the next one)."""
+    values hold commas (a line with a missing code holds fewer than the next one). Fields
+    beyond the header that open with a remark mark are named as a remark
+    (:func:`_remark_beyond_header`)."""
     if "out of memory" in error:
         # the tokenizer's buffer allocation failed (ulimit -v, a container's or batch job's
         # memory limit): the file was blamed, with its delimiter
@@ -3135,6 +3175,10 @@ def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "
             # the parser's expected count is the first data line's where that line holds
             # more fields than the header (it took the extra ones as a row index)
             expected = field_count(header_line, delimiter)
+        remark = _remark_beyond_header(text, int(expected), delimiter)
+        if remark:
+            return (f"input file {str(path)!r}: line {line} has {saw} fields where the header "
+                    f"has {expected}: {remark}")
         return (f"input file {str(path)!r}: line {line} has {saw} fields where the header has "
                 f"{expected} (delimiter {delimiter!r}); a delimiter inside a value, or two "
                 "records run together after an interrupted write? Correct or delete that line "
