@@ -1937,9 +1937,12 @@ def command_verify(args) -> int:
     report = verify(args.directory, input_path=getattr(args, "input", None),
                     config_path=getattr(args, "config", None),
                     exact=bool(getattr(args, "exact", False)))
-    lines = report.format(detail=bool(getattr(args, "detail", False))).splitlines()
+    quiet = bool(getattr(args, "quiet", False))
+    # --quiet wins over --detail: its head line spoke of "entries below" and none followed
+    lines = report.format(detail=bool(getattr(args, "detail", False)) and not quiet
+                          ).splitlines()
     # --quiet: the verdict and the caution, without the per-column detail
-    if getattr(args, "quiet", False):
+    if quiet:
         identity = [line for line in lines if line.startswith("result: ")]
         changed = report.folder_changes
         headline = lines[0].rstrip(":") + (f" ({'; '.join(changed)})" if changed else "")

@@ -358,7 +358,7 @@ def test_a_description_reworded_by_other_code_names_the_code_as_likely_cause(
     assert "daily: metadata 'nee description' differs (values equal): stored 'worded " \
            "otherwise', recomputed" in out
 
-def test_the_copies_of_a_reworded_description_are_one_item_per_column():
+def test_the_copies_of_a_reworded_description_are_one_item_per_column(monkeypatch, capsys):
     """A description is written three times per column (the Parquet field, the fluxpart
     table metadata, the pandas copy): verify printed each in full (review55: 18 lines of
     ~1400 characters for two columns). Without --detail a table is one line naming what
@@ -386,6 +386,21 @@ def test_the_copies_of_a_reworded_description_are_one_item_per_column():
     assert detailed.splitlines()[0].startswith("NOT reproduced: 3 difference(s) between out "
                                                "and its recomputation (7 entries below: ")
     assert detailed.count(long_new) == 6
+    # --quiet with --detail: the head line promised entries that --quiet leaves out
+    import argparse
+
+    import fluxpart.verify as module
+    monkeypatch.setattr(module, "verify", lambda *args, **kwargs: report)
+    assert module.command_verify(argparse.Namespace(directory="out", quiet=True,
+                                                    detail=True)) == 1
+    assert capsys.readouterr().out.splitlines()[0] == text.splitlines()[0].rstrip(":")
+    # descriptions only beside rounding: the values are equal within rounding, not equal
+    report = VerifyReport(directory=Path("out"), source="run", tables=("annual",),
+                          differences=tuple(found[:3]), rounding=(Difference(
+                              "annual", "rounding", column="nee", row="year=2021",
+                              stored="1.0", recomputed="1.0000000001", relative=1e-10),))
+    assert report.format().splitlines()[0].endswith(
+        "every value equals its recomputation within rounding:")
 
 
 def test_an_edited_file_names_its_edited_unit_and_a_description_edited_with_a_value(
