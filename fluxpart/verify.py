@@ -1894,8 +1894,11 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
             # metadata are compared beside any value difference and after an edit of the
             # file: an edited unit, or a description edited with a value, was reported only
             # as "changed after it was written" without what changed (review57)
-            described = metadata_differences(directory / manifest["tables"][name]["file"],
-                                             again / new_manifest["tables"][name]["file"])
+            # a column added, dropped or of another type is named by compare_tables: its
+            # schema entries would only repeat it
+            described = [] if any(d.kind in ("columns", "dtype") for d in found) else \
+                metadata_differences(directory / manifest["tables"][name]["file"],
+                                     again / new_manifest["tables"][name]["file"])
             values = ("" if not found else "values within rounding"
                       if all(d.kind == "rounding" for d in found) else "values differ too")
             differences += [Difference(name, "metadata", column=key, stored=old,
