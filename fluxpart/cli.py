@@ -596,8 +596,8 @@ def _parser() -> argparse.ArgumentParser:
                         "result the folder holds, and the caution (same exit status)")
     verify.add_argument("--detail", action="store_true",
                         help="print each differing metadata entry (a column's description or "
-                        "unit, each copy) with both texts in full; by default a table whose "
-                        "values are equal is one line naming the columns")
+                        "unit, each copy) with both texts in full; by default a table's "
+                        "metadata differences are one line naming the columns")
     verify.set_defaults(handler=_lazy("verify", "command_verify"))
 
     diff = commands.add_parser(

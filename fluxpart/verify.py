@@ -167,6 +167,10 @@ class Difference:
     relative : float
         Largest relative difference of the column (``"value"`` and ``"rounding"``
         of float columns; NaN otherwise).
+    cause : str
+        Of an ``"input"``: why the file is another one. Of a ``"metadata"``: how the
+        table's values compare (``""`` equal, ``"values within rounding"``, ``"values
+        differ too"``).
     """
 
     table: str
@@ -215,8 +219,9 @@ class Difference:
         if self.kind == "table":
             return f"{self.table}: stored {self.stored}, recomputed {self.recomputed}"
         if self.kind == "metadata":
-            return (f"{self.table}: metadata {self.column!r} differs (values equal): stored "
-                    f"{self.stored!r}, recomputed {self.recomputed!r}")
+            return (f"{self.table}: metadata {self.column!r} differs "
+                    f"({self.cause or 'values equal'}): stored {self.stored!r}, recomputed "
+                    f"{self.recomputed!r}")
         where = f" column {self.column!r}" if self.column else ""
         at = f" at {self.row}" if self.row else ""
         return (f"{self.table}:{where}{at} {self.kind} differ: stored {self.stored}, "
@@ -368,10 +373,17 @@ class VerifyReport:
                          f"{folder} and its manifest (nothing recomputed):"]
             else:
                 wording = (", all of them in the tables' column descriptions; every value "
-                           "equals its recomputation" if self.descriptions_only else "")
-                shown = len(failures) if detail else _difference_count(failures)
+                           "equals its recomputation" + (" within rounding" if self.rounding
+                                                         else "")
+                           if self.descriptions_only else "")
+                # one count with and without --detail: 15 reworded descriptions of a
+                # 0.31.0 folder read "15" plain and "45" with --detail (review57)
+                shown = _difference_count(failures)
+                entries = (f" ({len(failures)} entries below: a column's unit or description "
+                           "is stored in three places of its file)"
+                           if detail and len(failures) != shown else "")
                 lines = [f"NOT reproduced: {shown} difference(s) between "
-                         f"{folder} and its recomputation{wording}:"]
+                         f"{folder} and its recomputation{wording}{entries}:"]
             lines += [f"  {line}" for line in _described(failures + list(self.rounding),
                                                          detail)]
             # a file changed after it was written is no effect of code: naming the code
@@ -443,7 +455,7 @@ def _metadata_item(key: str) -> tuple[str, str | None]:
 
 
 def metadata_summary(differences) -> list[str]:
-    """One line per table whose metadata differ (values equal), naming what and its columns.
+    """One line per table whose metadata differ, naming what and its columns.
 
     Each column's description or unit is written three times (the Parquet field, the
     fluxpart table metadata and the pandas copy, :mod:`fluxpart.store`): listing each
@@ -462,9 +474,12 @@ def metadata_summary(differences) -> list[str]:
         (stored 'kg m-2', recomputed 'g m-2')"``: a table-level key
         (``fluxpart.site.utc_offset``) named as itself, both texts where each is at most
         :data:`_METADATA_TEXT_SHOWN` characters, at most
-        :data:`_METADATA_COLUMNS_LISTED` columns per item, then a count.
+        :data:`_METADATA_COLUMNS_LISTED` columns per item, then a count. Where the
+        table's values differ too (the entries' `cause`), ``"<table>: metadata (values
+        differ too, listed apart): ..."``.
     """
     tables: dict = {}
+    values: dict = {}
     for difference in differences:
         if difference.kind != "metadata":
             continue
@@ -475,6 +490,7 @@ def metadata_summary(differences) -> list[str]:
         short = all(len(str(t)) <= _METADATA_TEXT_SHOWN for t in texts)
         columns.setdefault(column, f" (stored {texts[0]!r}, recomputed {texts[1]!r})"
                            if short else "")
+        values.setdefault(difference.table, difference.cause)
     lines = []
     for table, items in tables.items():
         parts = []
@@ -486,8 +502,9 @@ def metadata_summary(differences) -> list[str]:
             named = ", ".join(f"{column}{shown}" for column, shown in
                               list(columns.items())[:_METADATA_COLUMNS_LISTED])
             parts.append(f"{what} of {named}" + (f" and {more} more" if more > 0 else ""))
-        lines.append(f"{table}: metadata only (values equal): {'; '.join(parts)} (the texts: "
-                     "verify --detail)")
+        state = (f"metadata ({values[table]}, listed apart)" if values[table] else
+                 "metadata only (values equal)")
+        lines.append(f"{table}: {state}: {'; '.join(parts)} (the texts: verify --detail)")
     return lines
 
 
@@ -1874,12 +1891,21 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                              + ("bit-identical to the rerun's: only the file and its metadata "
                                 "changed" if not found else "not the rerun's where listed"))
                 continue
+            # metadata are compared beside any value difference and after an edit of the
+            # file: an edited unit, or a description edited with a value, was reported only
+            # as "changed after it was written" without what changed (review57)
+            # a column added, dropped or of another type is named by compare_tables: its
+            # schema entries would only repeat it
+            described = [] if any(d.kind in ("columns", "dtype") for d in found) else \
+                metadata_differences(directory / manifest["tables"][name]["file"],
+                                     again / new_manifest["tables"][name]["file"])
+            values = ("" if not found else "values within rounding"
+                      if all(d.kind == "rounding" for d in found) else "values differ too")
+            differences += [Difference(name, "metadata", column=key, stored=old,
+                                       recomputed=new, cause=values)
+                            for key, old, new in described]
             if not found and (new_manifest["tables"][name]["sha256"]
                               != manifest["tables"][name].get("sha256")):
-                described = metadata_differences(directory / manifest["tables"][name]["file"],
-                                                 again / new_manifest["tables"][name]["file"])
-                differences += [Difference(name, "metadata", column=key, stored=old,
-                                           recomputed=new) for key, old, new in described]
                 if not described:
                     cause = ("written before tables carried the copy of their metadata that "
                              "pandas.read_parquet reads (PANDAS_ATTRS)"
@@ -1914,9 +1940,12 @@ def command_verify(args) -> int:
     report = verify(args.directory, input_path=getattr(args, "input", None),
                     config_path=getattr(args, "config", None),
                     exact=bool(getattr(args, "exact", False)))
-    lines = report.format(detail=bool(getattr(args, "detail", False))).splitlines()
+    quiet = bool(getattr(args, "quiet", False))
+    # --quiet wins over --detail: its head line spoke of "entries below" and none followed
+    lines = report.format(detail=bool(getattr(args, "detail", False)) and not quiet
+                          ).splitlines()
     # --quiet: the verdict and the caution, without the per-column detail
-    if getattr(args, "quiet", False):
+    if quiet:
         identity = [line for line in lines if line.startswith("result: ")]
         changed = report.folder_changes
         headline = lines[0].rstrip(":") + (f" ({'; '.join(changed)})" if changed else "")

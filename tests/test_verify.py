@@ -358,7 +358,7 @@ def test_a_description_reworded_by_other_code_names_the_code_as_likely_cause(
     assert "daily: metadata 'nee description' differs (values equal): stored 'worded " \
            "otherwise', recomputed" in out
 
-def test_the_copies_of_a_reworded_description_are_one_item_per_column():
+def test_the_copies_of_a_reworded_description_are_one_item_per_column(monkeypatch, capsys):
     """A description is written three times per column (the Parquet field, the fluxpart
     table metadata, the pandas copy): verify printed each in full (review55: 18 lines of
     ~1400 characters for two columns). Without --detail a table is one line naming what
@@ -382,8 +382,60 @@ def test_the_copies_of_a_reworded_description_are_one_item_per_column():
             "texts: verify --detail)") in text.splitlines()
     assert long_old not in text and max(map(len, text.splitlines())) < 400
     detailed = report.format(detail=True)
-    assert detailed.splitlines()[0].startswith("NOT reproduced: 7 difference(s)")
+    # the same count with --detail, the entries counted apart (review57: 3 plain, 7 detailed)
+    assert detailed.splitlines()[0].startswith("NOT reproduced: 3 difference(s) between out "
+                                               "and its recomputation (7 entries below: ")
     assert detailed.count(long_new) == 6
+    # --quiet with --detail: the head line promised entries that --quiet leaves out
+    import argparse
+
+    import fluxpart.verify as module
+    monkeypatch.setattr(module, "verify", lambda *args, **kwargs: report)
+    assert module.command_verify(argparse.Namespace(directory="out", quiet=True,
+                                                    detail=True)) == 1
+    assert capsys.readouterr().out.splitlines()[0] == text.splitlines()[0].rstrip(":")
+    # descriptions only beside rounding: the values are equal within rounding, not equal
+    report = VerifyReport(directory=Path("out"), source="run", tables=("annual",),
+                          differences=tuple(found[:3]), rounding=(Difference(
+                              "annual", "rounding", column="nee", row="year=2021",
+                              stored="1.0", recomputed="1.0000000001", relative=1e-10),))
+    assert report.format().splitlines()[0].endswith(
+        "every value equals its recomputation within rounding:")
+
+
+def test_an_edited_file_names_its_edited_unit_and_a_description_edited_with_a_value(
+        copy, capsys):
+    """A table edited after it was written (its SHA-256 not forged): its metadata were
+    compared only where the rerun's file differed from the recorded one and every value
+    was equal, so an edited unit, or a description edited beside a value, printed only
+    "changed after it was written" (review57). Now each is named, and a description
+    beside a differing value does not claim the values equal."""
+    path = copy / "out" / "daily.parquet"
+    arrow = pq.read_table(path)
+    edit = {"nee": {b"unit": b"kg m-2"}, "gpp_daytime": {b"description": b"edited"}}
+    fields = [item.with_metadata({**item.metadata, **edit.get(item.name, {})})
+              for item in arrow.schema]
+    pq.write_table(arrow.cast(pa.schema(fields, metadata=arrow.schema.metadata)), path)
+    assert main(["verify", "--detail", str(copy / "out")]) == 1
+    out = capsys.readouterr().out
+    assert out.startswith("NOT reproduced: 3 difference(s)")          # hash, unit, description
+    assert "daily.parquet was changed after it was written" in out
+    assert "daily: metadata 'nee unit' differs (values equal): stored 'kg m-2'" in out
+    assert "daily: metadata 'gpp_daytime description' differs (values equal): stored " \
+           "'edited'" in out
+    # one value edited too: the metadata line does not say the values are equal
+    values = arrow.column("nee").to_pylist()
+    values[3] += 0.5
+    table = arrow.set_column(arrow.schema.get_field_index("nee"), "nee", pa.array(values))
+    pq.write_table(table.cast(pa.schema(fields, metadata=arrow.schema.metadata)), path)
+    assert main(["verify", str(copy / "out")]) == 1
+    lines = capsys.readouterr().out.splitlines()
+    assert lines[0].startswith("NOT reproduced: 4 difference(s)")   # hash, value, unit, text
+    assert any(line.startswith("  daily: column 'nee' at ") for line in lines)
+    assert ("  daily: metadata (values differ too, listed apart): descriptions of "
+            "gpp_daytime; units of nee (stored 'kg m-2', recomputed 'g m-2') (the texts: "
+            "verify --detail)") in lines
+    assert not any("values equal" in line for line in lines)
 
 
 def _rewrite_metadata(folder, table, change):
